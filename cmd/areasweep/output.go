@@ -1,0 +1,258 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/airbusgeo/godal"
+	"github.com/schollz/progressbar/v3"
+
+	"areasweep/extent"
+	"areasweep/report"
+)
+
+// prepareOut checks the output directory and returns a fresh staging
+// directory beside it. Everything is written into the stage and moved into
+// place at the end, so a failed run leaves no half-written output.
+func prepareOut(out string, force bool) (string, error) {
+	if st, err := os.Stat(out); err == nil {
+		if !st.IsDir() {
+			return "", badInput(fmt.Errorf("--out %s exists and is not a directory", out))
+		}
+		entries, err := os.ReadDir(out)
+		if err != nil {
+			return "", badInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
+		}
+		if len(entries) > 0 && !force {
+			return "", badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace it, or choose another directory", out))
+		}
+	}
+	parent := filepath.Dir(filepath.Clean(out))
+	if err := os.MkdirAll(parent, 0o755); err != nil {
+		return "", badInput(fmt.Errorf("cannot create %s: %v", parent, err))
+	}
+	stage, err := os.MkdirTemp(parent, "."+filepath.Base(out)+".partial-")
+	if err != nil {
+		return "", badInput(fmt.Errorf("cannot write in %s: %v", parent, err))
+	}
+	return stage, nil
+}
+
+// finishOut moves the stage into place, replacing an existing out.
+func finishOut(stage, out string) error {
+	if _, err := os.Stat(out); err == nil {
+		old := stage + ".old"
+		if err := os.Rename(out, old); err != nil {
+			return fmt.Errorf("cannot replace %s: %w", out, err)
+		}
+		if err := os.Rename(stage, out); err != nil {
+			os.Rename(old, out)
+			return fmt.Errorf("cannot move results into %s: %w", out, err)
+		}
+		return os.RemoveAll(old)
+	}
+	if err := os.Rename(stage, out); err != nil {
+		return fmt.Errorf("cannot move results into %s: %w", out, err)
+	}
+	return nil
+}
+
+// writeAtomic writes data to a temporary file beside path and renames it.
+func writeAtomic(path string, data []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-")
+	if err != nil {
+		return err
+	}
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		os.Remove(tmp.Name())
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(tmp.Name())
+		return err
+	}
+	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
+}
+
+func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// scoresCSV renders the scores as a tidy table: one row per model, extent
+// and metric, with the E or threshold the metric depends on.
+func scoresCSV(r *report.Results) []byte {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "metric", "e", "threshold", "value"})
+	kinds := map[string]report.Extent{}
+	for _, e := range r.Extents {
+		kinds[e.ID] = e
+	}
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		ex := kinds[sc.Extent]
+		row := func(metric, e, th string, v float64) {
+			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), metric, e, th, ftoa(v)})
+		}
+		row("auc", "", "", sc.AUC)
+		row("auc_unweighted", "", "", sc.AUCUnweighted)
+		row("auc_train", "", "", sc.AUCTrain)
+		row("auc_boot_sd", "", "", sc.AUCBootSD)
+		for _, p := range sc.PartialROC {
+			e := ftoa(p.E)
+			row("partial_roc_ratio", e, "", p.Ratio)
+			row("partial_roc_ratio_mean", e, "", p.RatioMean)
+			row("partial_roc_ci_low", e, "", p.CILow)
+			row("partial_roc_ci_high", e, "", p.CIHigh)
+			row("partial_roc_p_value", e, "", p.PValue)
+		}
+		for _, t := range sc.Thresholds {
+			name := t.Name
+			if name == "fixed" {
+				name = "fixed_" + ftoa(t.Value)
+			}
+			row("threshold_value", "", name, t.Value)
+			row("omission_rate", "", name, t.Omission)
+			row("area_fraction_present", "", name, t.AreaFraction)
+			row("binomial_p", "", name, t.PBinomial)
+		}
+		if sc.Boyce != nil {
+			row("boyce_index", "", "", sc.Boyce.Index)
+		}
+	}
+	w.Flush()
+	return buf.Bytes()
+}
+
+// extentsCSV renders the family summary.
+func extentsCSV(ex []report.Extent) []byte {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	w.Write([]string{"id", "kind", "params", "status", "duplicate_of", "chain", "cells", "area_km2", "share_of_raster", "train_points", "test_points"})
+	for _, e := range ex {
+		w.Write([]string{e.ID, e.Kind, e.Params, e.Status, e.DuplicateOf, e.Chain, strconv.FormatInt(e.Cells, 10), ftoa(e.AreaKm2),
+			ftoa(e.ShareOfRaster), strconv.Itoa(e.TrainPoints), strconv.Itoa(e.TestPoints)})
+	}
+	w.Flush()
+	return buf.Bytes()
+}
+
+// extentsTable renders the family summary for a terminal.
+func extentsTable(ex []report.Extent) string {
+	var sb strings.Builder
+	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "id\tkind\tcells\tarea km2\tshare\ttrain\ttest\tstatus\t")
+	for _, e := range ex {
+		st := e.Status
+		if e.DuplicateOf != "" {
+			st += " of " + e.DuplicateOf
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%d\t%.1f\t%.3f\t%d\t%d\t%s\t\n", e.ID, e.Kind, e.Cells, e.AreaKm2, e.ShareOfRaster, e.TrainPoints, e.TestPoints, st)
+	}
+	tw.Flush()
+	return sb.String()
+}
+
+// writeOmittedGPKG writes the test points with, per model and threshold, a
+// 0/1 field saying whether the threshold omits them (layer
+// "test_points"), so the spatial pattern of omission can be mapped.
+func writeOmittedGPKG(path string, r *report.Results) error {
+	extent.Register()
+	ds, err := godal.CreateVector(godal.GeoPackage, path)
+	if err != nil {
+		return fmt.Errorf("create %s: %w", path, err)
+	}
+	wgs, err := godal.NewSpatialRefFromEPSG(4326)
+	if err != nil {
+		ds.Close()
+		return err
+	}
+	type col struct {
+		name string
+		om   map[int]bool
+	}
+	var cols []col
+	opts := []godal.CreateLayerOption{godal.NewFieldDefinition("line", godal.FTInt), godal.NewFieldDefinition("nearest_train_km", godal.FTReal)}
+	for _, o := range r.Omissions {
+		name := "omit_" + o.Model + "_" + o.Threshold
+		if o.Threshold == "fixed" {
+			name += "_" + ftoa(o.Value)
+		}
+		c := col{name: name, om: map[int]bool{}}
+		for _, id := range o.Omitted {
+			c.om[id] = true
+		}
+		cols = append(cols, c)
+		opts = append(opts, godal.NewFieldDefinition(name, godal.FTInt))
+	}
+	layer, err := ds.CreateLayer("test_points", wgs, godal.GTPoint, opts...)
+	if err != nil {
+		ds.Close()
+		return fmt.Errorf("create layer in %s: %w", path, err)
+	}
+	for _, p := range r.Points {
+		if p.Role != "test" || p.Status != "scored" {
+			continue
+		}
+		geom, err := godal.NewGeometryFromWKT(fmt.Sprintf("POINT (%s %s)", ftoa(p.Lon), ftoa(p.Lat)), wgs)
+		if err != nil {
+			ds.Close()
+			return err
+		}
+		ft, err := layer.NewFeature(geom)
+		geom.Close()
+		if err != nil {
+			ds.Close()
+			return err
+		}
+		fl := ft.Fields()
+		ft.SetFieldValue(fl["line"], p.ID)
+		ft.SetFieldValue(fl["nearest_train_km"], p.NearestTrainKm)
+		for _, c := range cols {
+			v := 0
+			if c.om[p.ID] {
+				v = 1
+			}
+			ft.SetFieldValue(fl[c.name], v)
+		}
+		if err := layer.UpdateFeature(ft); err != nil {
+			ds.Close()
+			return err
+		}
+		ft.Close()
+	}
+	return ds.Close()
+}
+
+// bar is a progress bar on stderr, drawn only on a terminal.
+type bar struct{ pb *progressbar.ProgressBar }
+
+func (s *session) progress(what string, total int) *bar {
+	if s.o.Quiet || !s.o.IO.Terminal {
+		return &bar{}
+	}
+	return &bar{progressbar.NewOptions(total, progressbar.OptionSetWriter(s.o.IO.ErrOut), progressbar.OptionSetDescription(what),
+		progressbar.OptionShowCount(), progressbar.OptionClearOnFinish())}
+}
+
+func (b *bar) update(done, total int) {
+	if b.pb != nil {
+		b.pb.Set(done)
+	}
+}
+
+func (b *bar) finish() {
+	if b.pb != nil {
+		b.pb.Finish()
+	}
+}

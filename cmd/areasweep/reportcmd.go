@@ -1,0 +1,56 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"github.com/spf13/cobra"
+
+	"areasweep/report"
+)
+
+// ReportOptions re-renders a finished run's report.
+type ReportOptions struct {
+	IO  *IO
+	Dir string
+}
+
+func newReportCmd(streams *IO, runF func(*ReportOptions) error) *cobra.Command {
+	opts := &ReportOptions{IO: streams}
+	return &cobra.Command{
+		Use:   "report DIR",
+		Short: "Re-render the report of a finished run from its results.json",
+		Long: `report reads DIR/results.json, recomputes the sensitivity analysis and rewrites
+DIR/report.html, DIR/methods.md and DIR/figures/ (each file replaced atomically).
+The scores themselves are not recomputed.`,
+		Example: "  areasweep report areasweep-out",
+		Args:    cobra.ExactArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			opts.Dir = args[0]
+			if runF != nil {
+				return runF(opts)
+			}
+			return reportRun(opts)
+		},
+	}
+}
+
+func reportRun(o *ReportOptions) error {
+	path := filepath.Join(o.Dir, "results.json")
+	if _, err := os.Stat(path); err != nil {
+		return badInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
+	}
+	r, err := report.Load(path)
+	if err != nil {
+		return badInput(err)
+	}
+	if err := report.Analyze(r); err != nil {
+		return err
+	}
+	if err := reportWrite(o.Dir, r); err != nil {
+		return err
+	}
+	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
+	return nil
+}

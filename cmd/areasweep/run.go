@@ -1,0 +1,266 @@
+package main
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+
+	"areasweep/cmd/inputs"
+)
+
+// RunOptions holds everything a run needs. Flags and the study file fill
+// it; flags given on the command line win over the file.
+type RunOptions struct {
+	IO *IO
+
+	Study              string
+	Models             []string // NAME=PATH
+	Occurrences        string
+	OccurrencesCRS     string
+	Region             string
+	Ecoregions         string
+	EcoregionField     string
+	EcoregionMinPoints int
+	EcoregionClip      bool
+	Extra              []string // NAME=PATH
+	RegionBuffers      []float64
+	PointBuffers       []float64
+	PointBuffersAll    bool
+	HullBuffers        []float64
+	E                  []float64
+	Iterations         int
+	Fraction           float64
+	Thresholds         []float64
+	Seed               uint64
+	Out                string
+	Force              bool
+	Quiet              bool
+	NoThin             bool
+	MembershipTIFF     bool
+	Workers            int
+
+	// ExtentsOnly stops after building and exporting the family.
+	ExtentsOnly bool
+
+	// inputsDir, when set, is a directory of generated inputs (the demo's)
+	// that is moved into Out/inputs with the results; input paths are
+	// recorded as they will be after the move.
+	inputsDir string
+}
+
+// defaultRunOptions are the settings used when neither flag nor file says.
+func defaultRunOptions() RunOptions {
+	return RunOptions{
+		EcoregionMinPoints: 1,
+		RegionBuffers:      []float64{-50, 50, 100, 250, 500},
+		PointBuffers:       []float64{50, 100, 200},
+		HullBuffers:        []float64{0, 100},
+		E:                  []float64{0.05},
+		Iterations:         1000,
+		Fraction:           0.5,
+		Seed:               1,
+		Out:                "areasweep-out",
+	}
+}
+
+const runExample = `  # everything from flags (negative buffer distances need the = form)
+  areasweep run --model maxent=suit.tif --occurrences points.csv --region m.gpkg \
+    --region-buffers=-50,100,250,500 --point-buffers 50,100 --e 0.05,0.1 \
+    --iterations 1000 --seed 7 --out sweep1
+
+  # from a study file, overriding one setting
+  areasweep run --study study.yaml --iterations 200 --out quick --force`
+
+func newRunCmd(streams *IO, runF func(*RunOptions) error) *cobra.Command {
+	opts := defaultRunOptions()
+	opts.IO = streams
+	cmd := &cobra.Command{
+		Use:   "run",
+		Short: "Build the extent family, score every model on every extent, write the report",
+		Long: `run reads the model rasters once each, block by block, scores every extent of the
+family in that one pass, and writes results.json, scores.csv, extents.gpkg, the report
+and a run log into --out. Settings come from flags or from a study file (--study) whose
+keys are the flag names; flags given on the command line override the file.`,
+		Example: runExample,
+		Args:    cobra.NoArgs,
+		RunE: func(c *cobra.Command, args []string) error {
+			if err := opts.resolve(c.Flags()); err != nil {
+				return badInput(err)
+			}
+			if runF != nil {
+				return runF(&opts)
+			}
+			return sweep(&opts)
+		},
+	}
+	bindRunFlags(cmd.Flags(), &opts)
+	return cmd
+}
+
+func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
+	f.StringVar(&o.Study, "study", "", "study file (YAML) whose keys are these flag names")
+	f.StringArrayVar(&o.Models, "model", nil, "model raster as NAME=PATH (repeatable; all on one grid)")
+	f.StringVar(&o.Occurrences, "occurrences", "", "CSV of occurrences: longitude, latitude and role (train/test) columns")
+	f.StringVar(&o.OccurrencesCRS, "occurrences-crs", "", "CRS of the occurrence coordinates (default WGS84 lon/lat), e.g. EPSG:3035")
+	f.StringVar(&o.Region, "region", "", "base study region polygons (any OGR format: GeoPackage, Shapefile, GeoJSON)")
+	f.StringVar(&o.Ecoregions, "ecoregions", "", "optional ecoregion/unit polygon layer")
+	f.StringVar(&o.EcoregionField, "ecoregion-field", "", "id field of the ecoregion layer")
+	f.IntVar(&o.EcoregionMinPoints, "ecoregion-min-points", o.EcoregionMinPoints, "units with at least this many training points are occupied")
+	f.BoolVar(&o.EcoregionClip, "ecoregion-clip", false, "also add the ecoregion extents clipped to the base region")
+	f.StringArrayVar(&o.Extra, "extra", nil, "extra extent polygons as NAME=PATH (repeatable)")
+	f.Float64SliceVar(&o.RegionBuffers, "region-buffers", o.RegionBuffers, "geodesic buffers of the base region in km; negative shrinks (use --region-buffers=-50,100)")
+	f.Float64SliceVar(&o.PointBuffers, "point-buffers", o.PointBuffers, "radii in km of discs around the training points")
+	f.BoolVar(&o.PointBuffersAll, "point-buffers-all", false, "draw point buffers around all points, not only training points")
+	f.Float64SliceVar(&o.HullBuffers, "hull-buffers", o.HullBuffers, "buffers in km of the training points' convex hull (0 = the hull itself)")
+	f.Float64SliceVar(&o.E, "e", o.E, "allowable omission E for partial ROC, each in (0,1)")
+	f.IntVar(&o.Iterations, "iterations", o.Iterations, "bootstrap iterations for partial ROC")
+	f.Float64Var(&o.Fraction, "fraction", o.Fraction, "share of test points drawn (with replacement) in each bootstrap iteration, in (0,1]")
+	f.Float64SliceVar(&o.Thresholds, "thresholds", nil, "fixed suitability thresholds to test besides the training-presence ones")
+	f.Uint64Var(&o.Seed, "seed", o.Seed, "random seed of the bootstrap")
+	f.StringVar(&o.Out, "out", o.Out, "output directory (an existing non-empty one needs --force)")
+	f.BoolVar(&o.Force, "force", false, "replace an existing output directory")
+	f.BoolVar(&o.Quiet, "quiet", false, "no progress bars")
+	f.BoolVar(&o.NoThin, "no-thin", false, "keep several presences of one role in one cell (default: one per cell)")
+	f.BoolVar(&o.MembershipTIFF, "membership-tif", false, "also write extents.tif, one band per extent")
+	f.IntVar(&o.Workers, "workers", 0, "scoring goroutines (default: all cores); results do not depend on it")
+}
+
+// resolve merges the study file under the flags and validates the result.
+func (o *RunOptions) resolve(f *pflag.FlagSet) error {
+	if o.Study != "" {
+		st, err := inputs.LoadStudy(o.Study)
+		if err != nil {
+			return err
+		}
+		o.applyStudy(st, f)
+	}
+	return o.validate()
+}
+
+// applyStudy copies every setting of st whose flag was not given.
+func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
+	set := func(name string) bool { return !f.Changed(name) }
+	if st.Model != nil && set("model") {
+		o.Models = st.Model
+	}
+	str := func(name string, dst *string, v *string) {
+		if v != nil && set(name) {
+			*dst = *v
+		}
+	}
+	str("occurrences", &o.Occurrences, st.Occurrences)
+	str("occurrences-crs", &o.OccurrencesCRS, st.OccurrencesCRS)
+	str("region", &o.Region, st.Region)
+	str("ecoregions", &o.Ecoregions, st.Ecoregions)
+	str("ecoregion-field", &o.EcoregionField, st.EcoregionField)
+	str("out", &o.Out, st.Out)
+	if st.EcoregionMinPoints != nil && set("ecoregion-min-points") {
+		o.EcoregionMinPoints = *st.EcoregionMinPoints
+	}
+	boolean := func(name string, dst *bool, v *bool) {
+		if v != nil && set(name) {
+			*dst = *v
+		}
+	}
+	boolean("ecoregion-clip", &o.EcoregionClip, st.EcoregionClip)
+	boolean("point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
+	boolean("no-thin", &o.NoThin, st.NoThin)
+	boolean("membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
+	if st.Extra != nil && set("extra") {
+		o.Extra = st.Extra
+	}
+	list := func(name string, dst *[]float64, v []float64) {
+		if v != nil && set(name) {
+			*dst = v
+		}
+	}
+	list("region-buffers", &o.RegionBuffers, st.RegionBuffers)
+	list("point-buffers", &o.PointBuffers, st.PointBuffers)
+	list("hull-buffers", &o.HullBuffers, st.HullBuffers)
+	list("e", &o.E, st.E)
+	list("thresholds", &o.Thresholds, st.Thresholds)
+	if st.Iterations != nil && set("iterations") {
+		o.Iterations = *st.Iterations
+	}
+	if st.Fraction != nil && set("fraction") {
+		o.Fraction = *st.Fraction
+	}
+	if st.Seed != nil && set("seed") {
+		o.Seed = *st.Seed
+	}
+}
+
+// validate checks the settings that need no file access.
+func (o *RunOptions) validate() error {
+	if len(o.Models) == 0 && !o.ExtentsOnly {
+		return fmt.Errorf("no model given: add --model NAME=PATH (or 'model:' in the study file)")
+	}
+	seen := map[string]bool{}
+	for _, m := range o.Models {
+		name, _, err := inputs.ParseNamedPath(m)
+		if err != nil {
+			return fmt.Errorf("--model %q: %w", m, err)
+		}
+		if seen[name] {
+			return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
+		}
+		seen[name] = true
+	}
+	for _, m := range o.Extra {
+		if _, _, err := inputs.ParseNamedPath(m); err != nil {
+			return fmt.Errorf("--extra %q: %w", m, err)
+		}
+	}
+	if o.Occurrences == "" {
+		return fmt.Errorf("no occurrences given: add --occurrences FILE.csv")
+	}
+	if o.Region == "" {
+		return fmt.Errorf("no base region given: add --region FILE (GeoPackage, Shapefile or GeoJSON)")
+	}
+	if o.Ecoregions != "" && o.EcoregionField == "" {
+		return fmt.Errorf("--ecoregions needs --ecoregion-field NAME")
+	}
+	if o.EcoregionMinPoints < 1 {
+		return fmt.Errorf("--ecoregion-min-points is %d; it must be 1 or more", o.EcoregionMinPoints)
+	}
+	for _, e := range o.E {
+		if !(e > 0 && e < 1) {
+			return fmt.Errorf("--e value %g is outside (0,1); E is a share of test points, e.g. 0.05", e)
+		}
+	}
+	if len(o.E) == 0 {
+		return fmt.Errorf("--e is empty; give at least one allowable omission, e.g. 0.05")
+	}
+	if o.Iterations < 1 {
+		return fmt.Errorf("--iterations is %d; it must be 1 or more", o.Iterations)
+	}
+	if !(o.Fraction > 0 && o.Fraction <= 1) {
+		return fmt.Errorf("--fraction %g is outside (0,1]", o.Fraction)
+	}
+	for _, lst := range []struct {
+		name string
+		v    []float64
+	}{{"region-buffers", o.RegionBuffers}, {"point-buffers", o.PointBuffers}, {"hull-buffers", o.HullBuffers}, {"thresholds", o.Thresholds}} {
+		for _, v := range lst.v {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("--%s holds %v; give finite numbers", lst.name, v)
+			}
+		}
+	}
+	for _, d := range o.PointBuffers {
+		if d <= 0 {
+			return fmt.Errorf("--point-buffers value %g must be positive (km)", d)
+		}
+	}
+	for _, d := range o.HullBuffers {
+		if d < 0 {
+			return fmt.Errorf("--hull-buffers value %g must be 0 (the hull) or positive (km)", d)
+		}
+	}
+	if o.Out == "" {
+		return fmt.Errorf("--out is empty; name an output directory")
+	}
+	return nil
+}

@@ -1,0 +1,326 @@
+package main
+
+import (
+	"encoding/base64"
+	"fmt"
+	"math"
+	"sort"
+
+	"areasweep/cmd/pass"
+	"areasweep/extent"
+	"areasweep/extent/geodesy"
+	"areasweep/metrics"
+	"areasweep/report"
+)
+
+// modelPoints are one model's values at the scored points.
+type modelPoints struct {
+	vals  []float64
+	valid []bool
+}
+
+// scoreModel samples model i at the points, streams it once through the
+// family's accumulators and scores every extent.
+func (s *session) scoreModel(i int, m namedPath) error {
+	g, fam := s.grid, s.fam
+	r, err := pass.Open(m.Path)
+	if err != nil {
+		return badInput(err)
+	}
+	defer r.Close()
+	vals, valid, err := r.Sample(g, s.cell)
+	if err != nil {
+		return badInput(err)
+	}
+	var layoutVals []float64
+	var missing []string
+	for k, p := range s.points {
+		if p.Status != "scored" {
+			continue
+		}
+		if !valid[k] {
+			missing = append(missing, fmt.Sprintf("line %d", p.ID))
+			continue
+		}
+		layoutVals = append(layoutVals, vals[k])
+	}
+	if len(missing) > 0 {
+		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
+	}
+	layoutVals = append(layoutVals, s.o.Thresholds...)
+	lo, hi, err := r.ApproxRange()
+	if err != nil {
+		return badInput(err)
+	}
+	for _, v := range layoutVals {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	if !(hi > lo) {
+		hi = lo + 1
+	}
+	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
+	if err != nil {
+		return fmt.Errorf("model %s: %w", m.Name, err)
+	}
+	var pv *pass.Preview
+	if i == 0 {
+		pv = pass.NewPreview(g, previewSide)
+	}
+	bar := s.progress("scoring "+m.Name, r.Blocks())
+	accs, stats, err := r.Score(g, fam, layout, pass.Options{Workers: s.o.Workers, Progress: bar.update, Preview: pv})
+	bar.finish()
+	if err != nil {
+		return badInput(err)
+	}
+	floor := 0.0
+	if stats.Area > 0 {
+		floor = float64(stats.FloorArea) / float64(stats.Area)
+	}
+	s.res.Models = append(s.res.Models, report.Model{Name: m.Name, Path: s.recordedPath(m.Path), ValueMin: stats.Min, ValueMax: stats.Max, FloorShare: floor})
+	if pv != nil {
+		s.res.Preview = s.preview(pv, stats)
+	}
+	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds}
+	// Presence values per extent: only points inside the extent count.
+	presence := func(k int, role string) []float64 {
+		bit := uint64(1) << uint(k)
+		var out []float64
+		for j, p := range s.points {
+			if p.Status == "scored" && p.Role == role && valid[j] && fam.Mask[s.cell[j]]&bit != 0 {
+				out = append(out, vals[j])
+			}
+		}
+		return out
+	}
+	for k, mem := range fam.Members {
+		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
+		switch mem.Status {
+		case extent.StatusEmpty:
+			sc.NotScored = "extent covers no valid cell"
+			s.res.Scores = append(s.res.Scores, sc)
+			continue
+		case extent.StatusDuplicate:
+			sc.NotScored = "same cells as " + mem.DuplicateOf
+			s.res.Scores = append(s.res.Scores, sc)
+			continue
+		}
+		train, test := presence(k, "train"), presence(k, "test")
+		set.Seed = deriveSeed(s.o.Seed, m.Name, mem.ID)
+		out, err := metrics.Score(accs[k], train, test, set)
+		if err != nil {
+			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
+		}
+		sc.Cells, sc.AreaKm2 = out.Cells, float64(out.Area)/pass.AreaUnitsPerKm2
+		sc.TestPoints, sc.TrainPoints = out.TestN, out.TrainN
+		if !out.Scored {
+			sc.NotScored = out.NotScored
+			if out.TestN == 0 {
+				sc.NotScored = "no test points inside this extent"
+			}
+			s.res.Scores = append(s.res.Scores, sc)
+			continue
+		}
+		sc.Scored = true
+		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCBootSD = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCBootSD
+		for _, p := range out.PartialROC {
+			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
+				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
+		}
+		for _, t := range out.Thresholds {
+			sc.Thresholds = append(sc.Thresholds, report.Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,
+				AreaFraction: t.AreaFraction, Successes: t.Successes, N: t.N, PBinomial: t.PBinomial})
+		}
+		if out.Boyce.Defined {
+			sc.Boyce = &report.Boyce{Index: out.Boyce.Index, Windows: out.Boyce.Windows, Used: out.Boyce.Used, Mid: out.Boyce.Mid, Ratio: out.Boyce.Ratio}
+		}
+		cv := report.Curve{Model: m.Name, Extent: mem.ID}
+		for _, pt := range out.Curve {
+			cv.X = append(cv.X, pt.X)
+			cv.Y = append(cv.Y, pt.Y)
+		}
+		s.res.Curves = append(s.res.Curves, cv)
+		s.res.Scores = append(s.res.Scores, sc)
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
+	}
+	if err := s.rings(m.Name, accs, presence); err != nil {
+		return err
+	}
+	s.omissions(m.Name, vals, valid, layout)
+	return nil
+}
+
+func firstRatio(sc report.Score) float64 {
+	if len(sc.PartialROC) == 0 {
+		return 0
+	}
+	return sc.PartialROC[0].Ratio
+}
+
+// aucOf is the area-weighted Mann-Whitney AUC of presence values against
+// the background in a:
+//
+//	sum_p [W(< v_p) + W(= v_p)/2] / (n W)
+//
+// with exact areas from the accumulator's bins (Hanley & McNeil 1982).
+func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
+	if len(vals) == 0 || a.Area() == 0 {
+		return 0, false
+	}
+	sum := 0.0
+	for _, v := range vals {
+		below, equal, _, ok := a.AreaAt(v)
+		if !ok {
+			return 0, false
+		}
+		sum += float64(below) + float64(equal)/2
+	}
+	return sum / (float64(len(vals)) * float64(a.Area())), true
+}
+
+// rings decomposes each nested chain: for consecutive members A inside B,
+// the ring R = B minus A is scored against the test presences of B, and
+//
+//	AUC_B = (W_A AUC_A' + W_R AUC_R) / (W_A + W_R)
+//
+// holds exactly, where AUC_A' is the AUC of B's presences against A's cells.
+func (s *session) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
+	for _, name := range s.fam.ChainNames() {
+		chain := s.fam.Chain(name)
+		var rs []report.Ring
+		for i := 1; i < len(chain); i++ {
+			a, b := chain[i-1], chain[i]
+			ring, err := accs[b].Sub(accs[a])
+			if err != nil {
+				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, err)
+			}
+			test := presence(b, "test")
+			aIn, ok1 := aucOf(accs[a], test)
+			aRing, ok2 := aucOf(ring, test)
+			aOut, ok3 := aucOf(accs[b], test)
+			if !ok1 || !ok3 {
+				continue
+			}
+			if !ok2 {
+				aRing = 0
+			}
+			rs = append(rs, report.Ring{Chain: name, Model: model, Inner: s.fam.Members[a].ID, Outer: s.fam.Members[b].ID,
+				InnerAreaKm2: float64(accs[a].Area()) / pass.AreaUnitsPerKm2, RingAreaKm2: float64(ring.Area()) / pass.AreaUnitsPerKm2,
+				RingCells: ring.Cells(), AUCInner: aIn, AUCRing: aRing, AUCOuter: aOut})
+		}
+		if len(rs) == 0 {
+			continue
+		}
+		total := rs[len(rs)-1].AUCOuter - rs[0].AUCInner
+		for i := range rs {
+			if total != 0 {
+				rs[i].ShareOfChange = (rs[i].AUCOuter - rs[i].AUCInner) / total
+			}
+		}
+		s.res.Rings = append(s.res.Rings, rs...)
+	}
+	return nil
+}
+
+// omissions lists, per threshold, the test points the model omits. The
+// thresholds come from the training presences and fixed values only, so
+// the lists do not depend on the extent.
+func (s *session) omissions(model string, vals []float64, valid []bool, layout *metrics.Layout) {
+	var train, test []float64
+	var testIDs []int
+	for j, p := range s.points {
+		if p.Status != "scored" || !valid[j] {
+			continue
+		}
+		if p.Role == "train" {
+			train = append(train, vals[j])
+		} else {
+			test = append(test, vals[j])
+			testIDs = append(testIDs, p.ID)
+		}
+	}
+	type th struct {
+		name string
+		v    float64
+	}
+	var ths []th
+	if len(train) > 0 {
+		sorted := append([]float64(nil), train...)
+		sort.Float64s(sorted)
+		ths = append(ths, th{"minimum_training_presence", sorted[0]}, th{"p10_training_presence", sorted[metrics.P10Index(len(sorted))]})
+	}
+	for _, v := range s.o.Thresholds {
+		ths = append(ths, th{"fixed", v})
+	}
+	for _, t := range ths {
+		om := report.Omission{Model: model, Threshold: t.name, Value: t.v, Omitted: []int{}}
+		for k, v := range test {
+			if v < t.v {
+				om.Omitted = append(om.Omitted, testIDs[k])
+			}
+		}
+		s.res.Omissions = append(s.res.Omissions, om)
+	}
+}
+
+// preview packs the pass's coarse copy and the extents' masks.
+func (s *session) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
+	g, fam := s.grid, s.fam
+	lo, hi := st.Min, st.Max
+	vals := make([]byte, len(pv.Values))
+	for i, v := range pv.Values {
+		switch {
+		case math.IsNaN(v):
+			vals[i] = 255
+		case hi > lo:
+			vals[i] = byte(math.Round(math.Max(0, math.Min(1, (v-lo)/(hi-lo))) * 254))
+		}
+	}
+	p := &report.Preview{Width: pv.Width, Height: pv.Height, Bounds: g.Bounds(), ValueMin: lo, ValueMax: hi,
+		Values: base64.StdEncoding.EncodeToString(vals)}
+	for k := range fam.Members {
+		bits := make([]byte, (len(pv.Values)+7)/8)
+		bit := uint64(1) << uint(k)
+		for i := range pv.Values {
+			if fam.Mask[pv.SourceCell(g, i)]&bit != 0 {
+				bits[i/8] |= 1 << uint(i%8)
+			}
+		}
+		p.Masks = append(p.Masks, base64.StdEncoding.EncodeToString(bits))
+	}
+	return p
+}
+
+// finishResults adds distances between test and training points and the
+// sensitivity analysis.
+func (s *session) finishResults() error {
+	train, _, _ := s.scoredPoints("train")
+	if len(train) > 0 {
+		lats := make([]float64, len(train))
+		lons := make([]float64, len(train))
+		for i, p := range train {
+			lats[i], lons[i] = p.Lat, p.Lon
+		}
+		ix, err := geodesy.NewIndex(lats, lons)
+		if err != nil {
+			return err
+		}
+		for i := range s.points {
+			p := &s.points[i]
+			if p.Status == "scored" && p.Role == "test" {
+				_, d := ix.Nearest(s.lonlat[i].Lat, s.lonlat[i].Lon, 0)
+				p.NearestTrainKm = math.Round(d) / 1000
+			}
+		}
+	}
+	s.res.Points = s.points
+	if s.res.Rings == nil {
+		s.res.Rings = []report.Ring{}
+	}
+	if s.res.Omissions == nil {
+		s.res.Omissions = []report.Omission{}
+	}
+	if s.res.Curves == nil {
+		s.res.Curves = []report.Curve{}
+	}
+	return report.Analyze(s.res)
+}

@@ -1,0 +1,518 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"hash/fnv"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/cmd/inputs"
+	"areasweep/cmd/pass"
+	"areasweep/extent"
+	"areasweep/report"
+)
+
+// histBins is the size of the fine histogram used for the Boyce index and
+// curve drawing.
+const histBins = 4096
+
+// previewSide is the longer side of the coarse map copy in results.json.
+const previewSide = 240
+
+// session carries one run's state from inputs to outputs.
+type session struct {
+	o      *RunOptions
+	log    *strings.Builder
+	models []namedPath
+	grid   *extent.Grid
+	points []report.Point
+	lonlat []extent.LonLat // per point
+	cell   []int           // per point, -1 outside
+	fam    *extent.Family
+	res    *report.Results
+	stage  string
+	valid  extent.Valid
+}
+
+// recordedPath is the path written into results.json for an input: as
+// given, or for generated demo inputs, where they end up (OUT/inputs/...).
+func (s *session) recordedPath(p string) string {
+	if d := s.o.inputsDir; d != "" {
+		if rel, err := filepath.Rel(d, p); err == nil && !strings.HasPrefix(rel, "..") {
+			return filepath.Join(s.o.Out, "inputs", rel)
+		}
+	}
+	return p
+}
+
+type namedPath struct{ Name, Path string }
+
+// logf writes a line to the run log and, unless quiet, to stderr.
+func (s *session) logf(format string, args ...any) {
+	line := fmt.Sprintf(format, args...)
+	s.log.WriteString(line + "\n")
+	if !s.o.Quiet {
+		fmt.Fprintln(s.o.IO.ErrOut, line)
+	}
+}
+
+func (s *session) warn(msg string) {
+	s.res.Warnings = append(s.res.Warnings, msg)
+	s.logf("warning: %s", msg)
+}
+
+// sweep runs the whole analysis described by o.
+func sweep(o *RunOptions) error {
+	s := &session{o: o, log: &strings.Builder{}, res: &report.Results{
+		SchemaVersion: report.SchemaVersion,
+		Software:      report.Software{Name: "areasweep", Version: version},
+		Seed:          o.Seed,
+		Warnings:      []string{},
+	}}
+	stage, err := prepareOut(o.Out, o.Force)
+	if err != nil {
+		return err
+	}
+	s.stage = stage
+	ok := false
+	defer func() {
+		if !ok {
+			os.RemoveAll(stage)
+		}
+	}()
+	if err := s.readInputs(); err != nil {
+		return err
+	}
+	if err := s.buildFamily(); err != nil {
+		return err
+	}
+	if err := s.fam.WriteGeoPackage(filepath.Join(stage, "extents.gpkg")); err != nil {
+		return err
+	}
+	if o.MembershipTIFF {
+		if err := s.fam.WriteMembershipTIFF(filepath.Join(stage, "extents.tif")); err != nil {
+			return err
+		}
+	}
+	if o.ExtentsOnly {
+		if err := writeAtomic(filepath.Join(stage, "extents.csv"), extentsCSV(s.res.Extents)); err != nil {
+			return err
+		}
+		fmt.Fprint(o.IO.Out, extentsTable(s.res.Extents))
+	} else {
+		for i, m := range s.models {
+			if err := s.scoreModel(i, m); err != nil {
+				return err
+			}
+		}
+		if err := s.finishResults(); err != nil {
+			return err
+		}
+		data, err := s.res.Encode()
+		if err != nil {
+			return err
+		}
+		if err := writeAtomic(filepath.Join(stage, "results.json"), data); err != nil {
+			return err
+		}
+		if err := writeAtomic(filepath.Join(stage, "scores.csv"), scoresCSV(s.res)); err != nil {
+			return err
+		}
+		if err := writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res); err != nil {
+			return err
+		}
+		if err := reportWrite(stage, s.res); err != nil {
+			return err
+		}
+	}
+	if err := writeAtomic(filepath.Join(stage, "run.log"), []byte(s.log.String())); err != nil {
+		return err
+	}
+	if o.inputsDir != "" {
+		if err := os.Rename(o.inputsDir, filepath.Join(stage, "inputs")); err != nil {
+			return fmt.Errorf("move demo inputs: %w", err)
+		}
+	}
+	if err := finishOut(stage, o.Out); err != nil {
+		return err
+	}
+	ok = true
+	if o.ExtentsOnly {
+		fmt.Fprintf(o.IO.Out, "extents written to %s\n", filepath.Join(o.Out, "extents.gpkg"))
+	} else {
+		fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
+	}
+	return nil
+}
+
+// readInputs opens the models, checks their grids, reads the occurrences
+// and the valid cells of the first model.
+func (s *session) readInputs() error {
+	o := s.o
+	for _, m := range o.Models {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("model "+name, path); err != nil {
+			return err
+		}
+		s.models = append(s.models, namedPath{name, path})
+	}
+	for _, p := range []struct{ what, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+		if p.path != "" {
+			if err := mustExist(p.what, p.path); err != nil {
+				return err
+			}
+		}
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("extra extent "+name, path); err != nil {
+			return err
+		}
+	}
+	if len(s.models) == 0 {
+		return badInput(errors.New("no model raster given (--model NAME=PATH); even 'extents' needs one for the grid"))
+	}
+	for i, m := range s.models {
+		g, err := extent.OpenGrid(m.Path)
+		if err != nil {
+			return badInput(fmt.Errorf("model %s: %w", m.Name, err))
+		}
+		if i == 0 {
+			s.grid = g
+			continue
+		}
+		if d := s.grid.SameAs(g); d != "" {
+			return badInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid (e.g. gdalwarp -tr/-te)",
+				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d))
+		}
+		g.Close()
+	}
+	g := s.grid
+	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
+	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
+	if err := s.readPoints(); err != nil {
+		return err
+	}
+	return s.checksums()
+}
+
+func mustExist(what, path string) error {
+	st, err := os.Stat(path)
+	if err != nil {
+		return badInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
+	}
+	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
+		return badInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+	}
+	return nil
+}
+
+func shortText(s string, n int) string {
+	if len(s) > n {
+		return s[:n] + "..."
+	}
+	return s
+}
+
+// readPoints reads the occurrence table, places each record on the grid,
+// drops those outside the raster or on no-data, and thins duplicates.
+func (s *session) readPoints() error {
+	o, g := s.o, s.grid
+	geographic := true
+	var toLL *godal.Transform
+	if o.OccurrencesCRS != "" {
+		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
+		if err != nil {
+			return badInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %v", o.OccurrencesCRS, err))
+		}
+		geographic = sr.Geographic()
+		if !geographic {
+			wgs, _ := godal.NewSpatialRefFromEPSG(4326)
+			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
+				return badInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %v", o.OccurrencesCRS, err))
+			}
+			defer toLL.Close()
+		}
+	}
+	recs, err := inputs.ReadOccurrences(o.Occurrences, geographic)
+	if err != nil {
+		return badInput(err)
+	}
+	n := len(recs)
+	lons := make([]float64, n)
+	lats := make([]float64, n)
+	for i, r := range recs {
+		lons[i], lats[i] = r.X, r.Y
+	}
+	if toLL != nil {
+		okv := make([]bool, n)
+		if err := toLL.TransformEx(lons, lats, nil, okv); err != nil {
+			return badInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %v", o.Occurrences, o.OccurrencesCRS, err))
+		}
+	}
+	xs := make([]float64, n)
+	ys := make([]float64, n)
+	g.FromLonLat(lons, lats, xs, ys)
+	s.points = make([]report.Point, n)
+	s.lonlat = make([]extent.LonLat, n)
+	s.cell = make([]int, n)
+	for i, r := range recs {
+		p := report.Point{ID: r.Line, Role: string(r.Role), Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: "scored"}
+		s.lonlat[i] = extent.LonLat{Lon: lons[i], Lat: lats[i]}
+		s.cell[i] = -1
+		if col, row, ok := g.CellOf(xs[i], ys[i]); ok {
+			p.Row, p.Col = row, col
+			s.cell[i] = row*g.Width + col
+		} else {
+			p.Status = "outside_raster"
+		}
+		s.points[i] = p
+	}
+	// Valid cells of the reference (first) model: one read of it.
+	r, err := pass.Open(s.models[0].Path)
+	if err != nil {
+		return badInput(err)
+	}
+	defer r.Close()
+	bar := s.progress("reading "+s.models[0].Name+" (valid cells)", r.Blocks())
+	valid, err := r.ReadValid(g, bar.update)
+	bar.finish()
+	if err != nil {
+		return badInput(err)
+	}
+	s.valid = valid
+	var outside, nodata []string
+	for i := range s.points {
+		p := &s.points[i]
+		if p.Status == "outside_raster" {
+			outside = append(outside, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
+			s.cell[i] = -1
+			continue
+		}
+		if !valid.Has(s.cell[i]) {
+			p.Status = "nodata"
+			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
+			s.cell[i] = -1
+		}
+	}
+	if len(outside) > 0 {
+		s.warn(fmt.Sprintf("%d occurrence(s) outside the raster, not scored: %s", len(outside), listSome(outside, 10)))
+	}
+	if len(nodata) > 0 {
+		s.warn(fmt.Sprintf("%d occurrence(s) on no-data cells of %s, not scored: %s", len(nodata), s.models[0].Name, listSome(nodata, 10)))
+	}
+	// Thinning: one presence per cell and role, the first line kept.
+	if !o.NoThin {
+		seen := map[[2]int]int{}
+		thinned := 0
+		for i := range s.points {
+			p := &s.points[i]
+			if s.cell[i] < 0 {
+				continue
+			}
+			key := [2]int{s.cell[i], roleIndex(p.Role)}
+			if first, dup := seen[key]; dup {
+				p.Status = "thinned"
+				thinned++
+				s.logf("thinned: line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role)
+				s.cell[i] = -1
+				continue
+			}
+			seen[key] = i
+		}
+		if thinned > 0 {
+			s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", thinned))
+		}
+	}
+	c := &s.res.PointCounts
+	for _, p := range s.points {
+		switch p.Status {
+		case "scored":
+			if p.Role == "train" {
+				c.Train++
+			} else {
+				c.Test++
+			}
+		case "thinned":
+			c.Thinned++
+		case "outside_raster":
+			c.OutsideRaster++
+		case "nodata":
+			c.NoData++
+		}
+	}
+	if c.Test == 0 {
+		return badInput(fmt.Errorf("%s: no test point falls on a valid cell of the raster; nothing can be scored", o.Occurrences))
+	}
+	if c.Train == 0 {
+		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
+	}
+	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
+	return nil
+}
+
+func roleIndex(r string) int {
+	if r == "train" {
+		return 0
+	}
+	return 1
+}
+
+func listSome(items []string, n int) string {
+	if len(items) <= n {
+		return strings.Join(items, "; ")
+	}
+	return strings.Join(items[:n], "; ") + fmt.Sprintf("; and %d more (see results.json points)", len(items)-n)
+}
+
+func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
+
+// checksums records the SHA-256 of every input file.
+func (s *session) checksums() error {
+	o := s.o
+	add := func(role, path string) error {
+		sum, err := fileSHA256(path)
+		if err != nil {
+			return badInput(fmt.Errorf("%s: %w", role, err))
+		}
+		s.res.Inputs = append(s.res.Inputs, report.Input{Role: role, Path: s.recordedPath(path), SHA256: sum})
+		return nil
+	}
+	for _, m := range s.models {
+		if err := add("model:"+m.Name, m.Path); err != nil {
+			return err
+		}
+	}
+	if err := add("occurrences", o.Occurrences); err != nil {
+		return err
+	}
+	if err := add("region", o.Region); err != nil {
+		return err
+	}
+	if o.Ecoregions != "" {
+		if err := add("ecoregions", o.Ecoregions); err != nil {
+			return err
+		}
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := add("extra:"+name, path); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func fileSHA256(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", err
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", fmt.Errorf("read %s: %w", path, err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// scoredPoints returns lon/lat and cells of the scored points of role.
+func (s *session) scoredPoints(role string) ([]extent.LonLat, []int, []int) {
+	var ll []extent.LonLat
+	var cells, idx []int
+	for i, p := range s.points {
+		if p.Status == "scored" && p.Role == role {
+			ll = append(ll, s.lonlat[i])
+			cells = append(cells, s.cell[i])
+			idx = append(idx, i)
+		}
+	}
+	return ll, cells, idx
+}
+
+// buildFamily builds the extent family and fills Results.Extents.
+func (s *session) buildFamily() error {
+	o := s.o
+	train, trainCells, _ := s.scoredPoints("train")
+	test, testCells, _ := s.scoredPoints("test")
+	spec := extent.Spec{
+		Region:             o.Region,
+		RegionBuffersKm:    o.RegionBuffers,
+		Train:              train,
+		Test:               test,
+		PointBuffersAll:    o.PointBuffersAll,
+		Ecoregions:         o.Ecoregions,
+		EcoregionField:     o.EcoregionField,
+		EcoregionMinPoints: o.EcoregionMinPoints,
+		EcoregionClip:      o.EcoregionClip,
+	}
+	if len(train) > 0 {
+		spec.PointBuffersKm = o.PointBuffers
+		spec.HullBuffersKm = o.HullBuffers
+	} else {
+		spec.Ecoregions = ""
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		spec.Extra = append(spec.Extra, extent.Named{Name: name, Path: path})
+	}
+	s.logf("building the extent family")
+	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
+	if err != nil {
+		if errors.Is(err, extent.ErrTooManyMembers) {
+			return badInput(err)
+		}
+		return badInput(err)
+	}
+	s.fam = fam
+	for _, w := range fam.Warnings {
+		s.warn(w)
+	}
+	if fam.Members[0].Cells == 0 {
+		return badInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, o.Region, s.models[0].Path))
+	}
+	for _, m := range fam.Members {
+		s.res.Extents = append(s.res.Extents, report.Extent{
+			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
+			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
+			Status: m.Status, DuplicateOf: m.DuplicateOf, Chain: m.Chain,
+		})
+		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
+	}
+	s.res.Settings = report.Settings{
+		RegionBuffersKm: nonNil(o.RegionBuffers), PointBuffersKm: nonNil(spec.PointBuffersKm), PointBufferAll: o.PointBuffersAll,
+		HullBuffersKm: nonNil(spec.HullBuffersKm), EcoregionMinPoints: o.EcoregionMinPoints, EcoregionField: o.EcoregionField,
+		E: nonNil(o.E), Iterations: o.Iterations, ResampleFraction: o.Fraction, FixedThresholds: nonNil(o.Thresholds),
+		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100,
+	}
+	return nil
+}
+
+func nonNil(v []float64) []float64 {
+	if v == nil {
+		return []float64{}
+	}
+	return v
+}
+
+// deriveSeed gives each model x extent its own bootstrap stream, fixed by
+// the run seed and the names alone (not by order or core count).
+func deriveSeed(seed uint64, model, ext string) uint64 {
+	h := fnv.New64a()
+	var b [8]byte
+	binary.LittleEndian.PutUint64(b[:], seed)
+	h.Write(b[:])
+	h.Write([]byte(model))
+	h.Write([]byte{0})
+	h.Write([]byte(ext))
+	return h.Sum64()
+}

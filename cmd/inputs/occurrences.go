@@ -1,0 +1,532 @@
+package inputs
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+)
+
+// Role says what an occurrence record is used for.
+type Role string
+
+// The two roles an occurrence record can have.
+const (
+	// RoleTrain marks a record used to calibrate (train) the model.
+	RoleTrain Role = "train"
+	// RoleTest marks a record held out to evaluate the model.
+	RoleTest Role = "test"
+)
+
+// Record is one occurrence read from the table.
+type Record struct {
+	// Line is the 1-based physical line number of the record in the file
+	// (the header is line 1 unless blank lines precede it).
+	Line int
+	// X and Y are the coordinates as given: longitude and latitude in
+	// degrees, or easting and northing when the table has a projected CRS.
+	X, Y float64
+	// Role is RoleTrain or RoleTest.
+	Role Role
+}
+
+// Sentinel errors of the occurrence reader. They are wrapped inside a
+// *ParseError; test for them with errors.Is.
+var (
+	// ErrNoCoordinates: the header has no longitude or no latitude column.
+	ErrNoCoordinates = errors.New("inputs: header has no longitude/latitude columns")
+	// ErrNoRole: the header has no role column.
+	ErrNoRole = errors.New("inputs: header has no role column")
+	// ErrAmbiguousColumn: two header fields name the same column.
+	ErrAmbiguousColumn = errors.New("inputs: header has two columns for the same value")
+	// ErrBadNumber: a coordinate cell is empty, not a number, NaN or infinite.
+	ErrBadNumber = errors.New("inputs: value is not a finite number")
+	// ErrBadRole: a role cell is not one of the accepted spellings.
+	ErrBadRole = errors.New("inputs: role is not train or test")
+	// ErrOutOfRange: a geographic coordinate lies outside its valid range.
+	ErrOutOfRange = errors.New("inputs: coordinate outside the valid range for degrees")
+	// ErrSwapped: the longitude and latitude columns look exchanged.
+	ErrSwapped = errors.New("inputs: longitude and latitude columns look swapped")
+	// ErrMalformed: the text is not valid delimited text (quotes, missing cells).
+	ErrMalformed = errors.New("inputs: malformed table")
+	// ErrEncoding: the file is not UTF-8 text.
+	ErrEncoding = errors.New("inputs: file is not UTF-8 text")
+	// ErrNoRecords: the file has no record below the header (or no header).
+	ErrNoRecords = errors.New("inputs: file has no records")
+	// ErrNoTest: no record has role test.
+	ErrNoTest = errors.New("inputs: no record has role test")
+	// ErrNoTrain: no record has role train.
+	ErrNoTrain = errors.New("inputs: no record has role train")
+)
+
+// ParseError reports a problem in an input file: which file, which line,
+// which column (header field name) and, in the wrapped error, what is wrong
+// and what to do. Line is 0 when the problem concerns the whole file, and
+// Field is empty when it concerns no single column.
+type ParseError struct {
+	File  string
+	Line  int
+	Field string
+	Err   error
+}
+
+// Error formats the error as "inputs: FILE line N, column "F": message".
+func (e *ParseError) Error() string {
+	var b strings.Builder
+	b.WriteString("inputs: ")
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, " line %d", e.Line)
+	}
+	if e.Field != "" {
+		fmt.Fprintf(&b, ", column %q", e.Field)
+	}
+	b.WriteString(": ")
+	if e.Err != nil {
+		b.WriteString(strings.TrimPrefix(e.Err.Error(), "inputs: "))
+	}
+	return b.String()
+}
+
+// Unwrap returns the wrapped error, so errors.Is finds the sentinel.
+func (e *ParseError) Unwrap() error { return e.Err }
+
+// Accepted header spellings, lower case.
+var (
+	lonNames  = []string{"lon", "long", "lng", "longitude", "x", "decimallongitude", "decimal_longitude"}
+	latNames  = []string{"lat", "latitude", "y", "decimallatitude", "decimal_latitude"}
+	roleNames = []string{"role"}
+)
+
+// LongitudeHeaders returns the accepted spellings of the longitude column
+// (lower case; matching ignores case and surrounding spaces).
+func LongitudeHeaders() []string { return append([]string(nil), lonNames...) }
+
+// LatitudeHeaders returns the accepted spellings of the latitude column
+// (lower case; matching ignores case and surrounding spaces).
+func LatitudeHeaders() []string { return append([]string(nil), latNames...) }
+
+const roleAdvice = "allowed values are train, training, test and testing (any case)"
+
+// ReadOccurrences reads the occurrence table at path. When geographic is
+// true the coordinates are WGS84 degrees and are range-checked; otherwise
+// they are taken as given. See the package documentation for the accepted
+// layout and ParseOccurrences for the errors.
+func ReadOccurrences(path string, geographic bool) ([]Record, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot open occurrence table: %w", err)
+	}
+	defer f.Close()
+	return ParseOccurrences(f, path, geographic)
+}
+
+// ParseOccurrences reads an occurrence table from r; name is used in error
+// messages in place of a file name. It returns the records in file order.
+//
+// Errors are *ParseError values wrapping one of ErrNoCoordinates, ErrNoRole,
+// ErrAmbiguousColumn, ErrBadNumber, ErrBadRole, ErrOutOfRange, ErrSwapped,
+// ErrMalformed, ErrEncoding, ErrNoRecords, ErrNoTest or ErrNoTrain, or a
+// read error from r. When several lines are wrong, the first problem found
+// is reported: problems of form (numbers, roles, quoting) are found in a
+// first pass, range problems after it, and missing roles last.
+func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, error) {
+	if name == "" {
+		name = "input"
+	}
+	perr := func(line int, field string, err error) error {
+		return &ParseError{File: name, Line: line, Field: field, Err: err}
+	}
+
+	br := bufio.NewReader(r)
+	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
+		_, _ = br.Discard(3)
+	} else if len(b) >= 2 && ((b[0] == 0xFF && b[1] == 0xFE) || (b[0] == 0xFE && b[1] == 0xFF)) {
+		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-16 byte-order mark; "+
+			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
+	}
+
+	// Find the header line (the first non-blank one) to choose the delimiter.
+	// The lines read here are fed back to the CSV reader so that line
+	// numbers stay physical.
+	var pre []byte
+	var header []byte
+	for {
+		line, err := br.ReadBytes('\n')
+		pre = append(pre, line...)
+		if len(bytes.TrimSpace(line)) > 0 {
+			header = line
+			break
+		}
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, fmt.Errorf("inputs: reading %s: %w", name, err)
+		}
+	}
+	if header == nil {
+		return nil, perr(0, "", fmt.Errorf("%w: the file is empty; write a header line "+
+			"(for example lon,lat,role) and one line per occurrence below it", ErrNoRecords))
+	}
+	delim := detectDelimiter(header)
+
+	cr := csv.NewReader(io.MultiReader(bytes.NewReader(pre), br))
+	cr.Comma = delim
+	cr.FieldsPerRecord = -1
+	cr.ReuseRecord = true
+	// With a white-space delimiter, TrimLeadingSpace would merge empty cells.
+	cr.TrimLeadingSpace = delim != '\t'
+
+	readRow := func() ([]string, int, error) {
+		for {
+			rec, err := cr.Read()
+			if err == io.EOF {
+				return nil, 0, io.EOF
+			}
+			if err != nil {
+				var pe *csv.ParseError
+				if errors.As(err, &pe) {
+					return nil, 0, perr(pe.Line, "", fmt.Errorf("%w: %v (at character %d of the line); "+
+						"put double quotes around a cell that contains the delimiter or a quote, "+
+						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
+				}
+				return nil, 0, fmt.Errorf("inputs: reading %s: %w", name, err)
+			}
+			if allBlank(rec) {
+				continue
+			}
+			line, _ := cr.FieldPos(0)
+			return rec, line, nil
+		}
+	}
+
+	hdr, hdrLine, err := readRow()
+	if err == io.EOF {
+		return nil, perr(0, "", fmt.Errorf("%w: no header line found", ErrNoRecords))
+	}
+	if err != nil {
+		return nil, err
+	}
+	cols, err := findColumns(hdr, delim)
+	if err != nil {
+		return nil, perr(hdrLine, "", err)
+	}
+
+	var recs []Record
+	for {
+		row, line, err := readRow()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		get := func(c column) (string, error) {
+			if c.index >= len(row) {
+				return "", perr(line, c.name, fmt.Errorf("%w: the line has %d cells but %q is cell %d of the header; "+
+					"check for a missing delimiter or a cell cut off at the end of the line",
+					ErrMalformed, len(row), c.name, c.index+1))
+			}
+			return strings.TrimSpace(row[c.index]), nil
+		}
+		var rec Record
+		rec.Line = line
+		for _, c := range []struct {
+			col  column
+			dst  *float64
+			what string
+		}{{cols.lon, &rec.X, "longitude"}, {cols.lat, &rec.Y, "latitude"}} {
+			s, err := get(c.col)
+			if err != nil {
+				return nil, err
+			}
+			v, err := parseNumber(s, delim != ',')
+			if err != nil {
+				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; write the %s as a decimal number "+
+					"such as -12.5 (dot as decimal separator), or delete the line", ErrBadNumber, err, c.what))
+			}
+			*c.dst = v
+		}
+		s, err := get(cols.role)
+		if err != nil {
+			return nil, err
+		}
+		role, ok := parseRole(s)
+		if !ok {
+			return nil, perr(line, cols.role.name, fmt.Errorf("%w: found %q; %s", ErrBadRole, s, roleAdvice))
+		}
+		rec.Role = role
+		recs = append(recs, rec)
+	}
+
+	if len(recs) == 0 {
+		return nil, perr(0, "", fmt.Errorf("%w: only a header was found (line %d); "+
+			"add one line per occurrence below the header", ErrNoRecords, hdrLine))
+	}
+	if geographic {
+		if err := checkDegrees(recs, cols, perr); err != nil {
+			return nil, err
+		}
+	}
+	var nTrain, nTest int
+	for _, r := range recs {
+		if r.Role == RoleTrain {
+			nTrain++
+		} else {
+			nTest++
+		}
+	}
+	if nTest == 0 {
+		return nil, perr(0, cols.role.name, fmt.Errorf("%w: %s train; "+
+			"mark the occurrences held out for evaluation with role test", ErrNoTest, allRecords(nTrain)))
+	}
+	if nTrain == 0 {
+		return nil, perr(0, cols.role.name, fmt.Errorf("%w: %s test; "+
+			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
+	}
+	return recs, nil
+}
+
+// column is a header field found by name.
+type column struct {
+	index int    // 0-based cell index
+	name  string // header spelling as written (trimmed)
+}
+
+type columns struct{ lon, lat, role column }
+
+// detectDelimiter returns ',' when the header line contains a comma, else
+// ';' or '\t', whichever the line holds more of (';' on a tie). A header
+// with none of the three keeps ',' so that it is reported as one field.
+func detectDelimiter(header []byte) rune {
+	if bytes.IndexByte(header, ',') >= 0 {
+		return ','
+	}
+	semi := bytes.Count(header, []byte{';'})
+	tab := bytes.Count(header, []byte{'\t'})
+	switch {
+	case semi == 0 && tab == 0:
+		return ','
+	case tab > semi:
+		return '\t'
+	default:
+		return ';'
+	}
+}
+
+func delimiterName(d rune) string {
+	switch d {
+	case ';':
+		return "semicolon"
+	case '\t':
+		return "tab"
+	default:
+		return "comma"
+	}
+}
+
+// findColumns locates the longitude, latitude and role columns.
+func findColumns(hdr []string, delim rune) (columns, error) {
+	var c columns
+	found := [3]bool{}
+	targets := []struct {
+		names []string
+		dst   *column
+		what  string
+	}{{lonNames, &c.lon, "longitude column"}, {latNames, &c.lat, "latitude column"}, {roleNames, &c.role, "role column"}}
+	for i, h := range hdr {
+		name := strings.TrimSpace(h)
+		key := strings.ToLower(name)
+		for t, tg := range targets {
+			if !contains(tg.names, key) {
+				continue
+			}
+			if found[t] {
+				return c, fmt.Errorf("%w: columns %q and %q both look like the %s; "+
+					"rename or delete one of them", ErrAmbiguousColumn, tg.dst.name, name, tg.what)
+			}
+			found[t] = true
+			*tg.dst = column{index: i, name: name}
+		}
+	}
+	seen := make([]string, len(hdr))
+	for i, h := range hdr {
+		seen[i] = strings.TrimSpace(h)
+	}
+	foundHeader := fmt.Sprintf("the header read as %d %s-separated fields %q", len(hdr), delimiterName(delim), seen)
+	if !found[0] || !found[1] {
+		var missing string
+		switch {
+		case !found[0] && !found[1]:
+			missing = "neither a longitude nor a latitude column"
+		case !found[0]:
+			missing = "no longitude column"
+		default:
+			missing = "no latitude column"
+		}
+		return c, fmt.Errorf("%w: found %s in %s; name the longitude column one of %s "+
+			"and the latitude column one of %s (case does not matter); "+
+			"the delimiter must be a comma, a semicolon or a tab",
+			ErrNoCoordinates, missing, foundHeader,
+			strings.Join(lonNames, ", "), strings.Join(latNames, ", "))
+	}
+	if !found[2] {
+		return c, fmt.Errorf("%w: no field named role in %s; add a column named role "+
+			"holding train or test on every line; %s", ErrNoRole, foundHeader, roleAdvice)
+	}
+	return c, nil
+}
+
+func contains(list []string, s string) bool {
+	for _, v := range list {
+		if v == s {
+			return true
+		}
+	}
+	return false
+}
+
+func allBlank(rec []string) bool {
+	for _, s := range rec {
+		if strings.TrimSpace(s) != "" {
+			return false
+		}
+	}
+	return true
+}
+
+func parseRole(s string) (Role, bool) {
+	switch strings.ToLower(s) {
+	case "train", "training":
+		return RoleTrain, true
+	case "test", "testing":
+		return RoleTest, true
+	}
+	return "", false
+}
+
+// parseNumber parses a plain decimal number (optional sign, digits, optional
+// fraction, optional exponent). Hexadecimal, NaN, infinities, digit
+// separators and out-of-range values are rejected. With decimalComma, a
+// single comma in a value without a dot is read as the decimal separator.
+func parseNumber(s string, decimalComma bool) (float64, error) {
+	if s == "" {
+		return 0, errors.New("the cell is empty")
+	}
+	t := s
+	if decimalComma && strings.Count(t, ",") == 1 && !strings.Contains(t, ".") {
+		t = strings.Replace(t, ",", ".", 1)
+	}
+	if !isDecimal(t) {
+		return 0, fmt.Errorf("found %q", s)
+	}
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, fmt.Errorf("found %q, which is out of range", s)
+	}
+	return v, nil
+}
+
+// isDecimal reports whether s matches [+-]?(d+(.d*)?|.d+)([eE][+-]?d+)?.
+func isDecimal(s string) bool {
+	i := 0
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+		i++
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+			digits++
+		}
+	}
+	if digits == 0 {
+		return false
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		exp := 0
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+			exp++
+		}
+		if exp == 0 {
+			return false
+		}
+	}
+	return i == len(s)
+}
+
+// checkDegrees range-checks geographic coordinates and detects swapped
+// longitude/latitude columns: the columns are reported as swapped when some
+// latitude lies outside [-90, 90] while every longitude lies within
+// [-90, 90] and every latitude within [-180, 360], i.e. when the table is
+// valid read the other way round.
+func checkDegrees(recs []Record, c columns, perr func(int, string, error) error) error {
+	inLat := func(v float64) bool { return v >= -90 && v <= 90 }
+	inLon := func(v float64) bool { return v >= -180 && v <= 360 }
+	firstBadLat := -1
+	lonAllLat, latAllLon := true, true
+	for i, r := range recs {
+		if !inLat(r.Y) && firstBadLat < 0 {
+			firstBadLat = i
+		}
+		if !inLat(r.X) {
+			lonAllLat = false
+		}
+		if !inLon(r.Y) {
+			latAllLon = false
+		}
+	}
+	if firstBadLat >= 0 && lonAllLat && latAllLon {
+		r := recs[firstBadLat]
+		return perr(r.Line, c.lat.name, fmt.Errorf("%w: latitude %s is outside [-90, 90] while every value "+
+			"in column %q lies within [-90, 90]; the columns %q and %q appear to be exchanged: "+
+			"rename the two header fields (or swap the two columns) and run again",
+			ErrSwapped, fmtNum(r.Y), c.lon.name, c.lon.name, c.lat.name))
+	}
+	for _, r := range recs {
+		if !inLat(r.Y) {
+			return perr(r.Line, c.lat.name, fmt.Errorf("%w: latitude %s is outside [-90, 90]; "+
+				"correct or delete the line, or, if the coordinates are projected (not degrees), "+
+				"give their CRS with --occurrences-crs", ErrOutOfRange, fmtNum(r.Y)))
+		}
+		if !inLon(r.X) {
+			return perr(r.Line, c.lon.name, fmt.Errorf("%w: longitude %s is outside [-180, 360]; "+
+				"correct or delete the line, or, if the coordinates are projected (not degrees), "+
+				"give their CRS with --occurrences-crs", ErrOutOfRange, fmtNum(r.X)))
+		}
+	}
+	return nil
+}
+
+// allRecords phrases "all n records are" with the right number.
+func allRecords(n int) string {
+	if n == 1 {
+		return "the only record is"
+	}
+	return fmt.Sprintf("all %d records are", n)
+}
+
+// fmtNum formats v in plain decimal notation unless it is very large.
+func fmtNum(v float64) string {
+	if math.Abs(v) >= 1e15 {
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	return strconv.FormatFloat(v, 'f', -1, 64)
+}

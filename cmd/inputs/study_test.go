@@ -1,0 +1,520 @@
+package inputs
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"github.com/spf13/cobra"
+)
+
+// All expected values in this file are by construction: each study file is
+// written in the test and the expected settings are read off it by hand.
+
+func ptr[T any](v T) *T { return &v }
+
+// fullStudy uses every key once, with relative and absolute paths.
+const fullStudy = `# a complete study
+model:
+  - maxent=models/maxent.tif
+  - glm=/abs/glm.tif
+occurrences: occ/points.csv
+occurrences-crs: EPSG:32633
+region: region.gpkg
+ecoregions: ../shared/ecoregions.gpkg
+ecoregion-field: ECO_NAME
+ecoregion-min-points: 3
+ecoregion-clip: true
+extra:
+  - mask=masks/mask.gpkg
+region-buffers: [10, 25.5, 50]
+point-buffers: [5]
+point-buffers-all: false
+hull-buffers: []
+e: [5, 10]
+iterations: 1000
+fraction: 0.5
+thresholds: [0, 0.1]
+seed: 18446744073709551615
+out: results
+no-thin: true
+membership-tif: false
+`
+
+func fullStudyWant(dir string) *Study {
+	j := func(p string) string { return filepath.Join(dir, p) }
+	return &Study{
+		Model:              []string{"maxent=" + j("models/maxent.tif"), "glm=/abs/glm.tif"},
+		Occurrences:        ptr(j("occ/points.csv")),
+		OccurrencesCRS:     ptr("EPSG:32633"),
+		Region:             ptr(j("region.gpkg")),
+		Ecoregions:         ptr(j("../shared/ecoregions.gpkg")),
+		EcoregionField:     ptr("ECO_NAME"),
+		EcoregionMinPoints: ptr(3),
+		EcoregionClip:      ptr(true),
+		Extra:              []string{"mask=" + j("masks/mask.gpkg")},
+		RegionBuffers:      []float64{10, 25.5, 50},
+		PointBuffers:       []float64{5},
+		PointBuffersAll:    ptr(false),
+		HullBuffers:        []float64{},
+		E:                  []float64{5, 10},
+		Iterations:         ptr(1000),
+		Fraction:           ptr(0.5),
+		Thresholds:         []float64{0, 0.1},
+		Seed:               ptr(uint64(18446744073709551615)),
+		Out:                ptr(j("results")),
+		NoThin:             ptr(true),
+		MembershipTIFF:     ptr(false),
+	}
+}
+
+func TestParseStudy(t *testing.T) {
+	cases := []struct {
+		name string
+		in   string
+		dir  string
+		want *Study
+	}{
+		{"full", fullStudy, "/base/study", fullStudyWant("/base/study")},
+		{"no base dir keeps paths relative", fullStudy, "", fullStudyWant("")},
+		{"empty file", "", "/b", &Study{}},
+		{"comments only", "# nothing yet\n", "/b", &Study{}},
+		{"null document", "~\n", "/b", &Study{}},
+		{"null values are absent", "iterations:\nregion: ~\nmodel: null\n", "/b", &Study{}},
+		{"model as mapping keeps order", "model:\n  zeta: z.tif\n  alpha: a.tif\n", "/b",
+			&Study{Model: []string{"zeta=/b/z.tif", "alpha=/b/a.tif"}}},
+		{"model as single text", "model: rf=rf.tif\n", "/b", &Study{Model: []string{"rf=/b/rf.tif"}}},
+		{"model spaces around =", "model: [\" rf = rf.tif \"]\n", "/b", &Study{Model: []string{"rf=/b/rf.tif"}}},
+		{"float list as text", "region-buffers: \"10, 20,30\"\n", "/b", &Study{RegionBuffers: []float64{10, 20, 30}}},
+		{"float list as single number", "e: 5\n", "/b", &Study{E: []float64{5}}},
+		{"float list empty text", "thresholds: \"\"\n", "/b", &Study{Thresholds: []float64{}}},
+		{"flow list with negative and exponent", "thresholds: [-1, 1e-3]\n", "/b", &Study{Thresholds: []float64{-1, 0.001}}},
+		{"whole float for int", "iterations: 1e3\n", "/b", &Study{Iterations: ptr(1000)}},
+		{"int for float", "fraction: 1\n", "/b", &Study{Fraction: ptr(1.0)}},
+		{"url and vsi paths unchanged", "region: https://example.org/r.gpkg\necoregions: /vsizip/e.zip/e.shp\n", "/b",
+			&Study{Region: ptr("https://example.org/r.gpkg"), Ecoregions: ptr("/vsizip/e.zip/e.shp")}},
+		{"anchor and alias", "e: &l [1, 2]\nthresholds: *l\n", "/b", &Study{E: []float64{1, 2}, Thresholds: []float64{1, 2}}},
+		{"numeric text for string key", "ecoregion-field: 12\n", "/b", &Study{EcoregionField: ptr("12")}},
+		{"document start marker", "---\nseed: 0\n", "/b", &Study{Seed: ptr(uint64(0))}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			got, err := ParseStudy(strings.NewReader(tc.in), "study.yaml", tc.dir)
+			if err != nil {
+				t.Fatalf("unexpected error: %v", err)
+			}
+			if !reflect.DeepEqual(got, tc.want) {
+				t.Fatalf("study\n got %s\nwant %s", dump(got), dump(tc.want))
+			}
+		})
+	}
+}
+
+// dump prints the set fields of a study for failure messages.
+func dump(s *Study) string {
+	var b strings.Builder
+	v := reflect.ValueOf(s).Elem()
+	for i := 0; i < v.NumField(); i++ {
+		f := v.Field(i)
+		if f.IsNil() {
+			continue
+		}
+		if f.Kind() == reflect.Pointer {
+			f = f.Elem()
+		}
+		fmt.Fprintf(&b, "%s=%v ", v.Type().Field(i).Name, f.Interface())
+	}
+	return b.String()
+}
+
+func TestParseStudyErrors(t *testing.T) {
+	cases := []struct {
+		name     string
+		in       string
+		is       error
+		line     int
+		key      string
+		contains []string
+	}{
+		{"unknown key", "iterations: 10\nregion_buffers: [1]\n", ErrUnknownKey, 2, "region_buffers",
+			[]string{`did you mean "region-buffers"?`, "allowed keys are model, occurrences,", "membership-tif"}},
+		{"unknown key typo", "\n\niteration: 10\n", ErrUnknownKey, 3, "iteration", []string{`did you mean "iterations"?`}},
+		{"unknown key no suggestion", "colour: red\n", ErrUnknownKey, 1, "colour", []string{"allowed keys are"}},
+		{"unknown key case", "Seed: 1\n", ErrUnknownKey, 1, "Seed", []string{`did you mean "seed"?`}},
+		{"duplicate key", "seed: 1\nout: o\nseed: 2\n", ErrDuplicateKey, 3, "seed", []string{"already given at line 1"}},
+		{"text for int", "iterations: many\n", ErrBadValue, 1, "iterations", []string{`"many" is not a whole number`, "iterations: 1000"}},
+		{"quoted int", "iterations: \"1000\"\n", ErrBadValue, 1, "iterations", []string{"(remove the quotes)"}},
+		{"quoted bool", "no-thin: 'true'\n", ErrBadValue, 1, "no-thin", []string{"(remove the quotes)"}},
+		{"short unknown key gets no guess", "x: 1\n", ErrUnknownKey, 1, "x", []string{"unknown key in study file: allowed keys"}},
+		{"fraction for int", "ecoregion-min-points: 2.5\n", ErrBadValue, 1, "ecoregion-min-points", []string{`"2.5" is not a whole number`}},
+		{"list for int", "iterations: [1, 2]\n", ErrBadValue, 1, "iterations", []string{"found a list"}},
+		{"negative seed", "seed: -1\n", ErrBadValue, 1, "seed", []string{`"-1" is not a whole number from 0`}},
+		{"seed too large", "seed: 18446744073709551616\n", ErrBadValue, 1, "seed", nil},
+		{"yes for bool", "no-thin: yes\n", ErrBadValue, 1, "no-thin", []string{`"yes" is not true or false`, "no-thin: true"}},
+		{"nan fraction", "fraction: .nan\n", ErrBadValue, 1, "fraction", []string{"not a finite number"}},
+		{"text fraction", "fraction: half\n", ErrBadValue, 1, "fraction", []string{`"half" is not a number`}},
+		{"mapping for string", "region:\n  a: b\n", ErrBadValue, 2, "region", []string{"found a mapping"}},
+		{"empty path", "out: \"\"\n", ErrBadValue, 1, "out", []string{"path is empty"}},
+		{"bad list item names its line", "region-buffers:\n  - 10\n  - ten\n", ErrBadValue, 3, "region-buffers", []string{`item 2: "ten" is not a number`}},
+		{"nested list item", "e: [[1]]\n", ErrBadValue, 1, "e", []string{"item 1 is a list"}},
+		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"--e: item 2", "is empty"}},
+		{"mapping for list", "e:\n  a: 1\n", ErrBadValue, 2, "e", []string{"expected a list of numbers"}},
+		{"model without =", "model:\n  - maxent.tif\n", ErrNamedPath, 2, "model", []string{`"maxent.tif" has no '='`, "maxent=models/maxent.tif"}},
+		{"model bad name", "model:\n  - ok=a.tif\n  - \"my model=b.tif\"\n", ErrNamedPath, 3, "model", []string{`name "my model"`}},
+		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
+		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
+		{"syntax error tab", "iterations: 10\n\tseed: 3\n", ErrStudySyntax, 0, "", []string{"near line 2", "spaces (not tabs)"}},
+		{"syntax error without line", "a: b: c\n", ErrStudySyntax, 0, "", []string{"mapping values are not allowed", "key: value"}},
+		{"syntax error unclosed", "e: [1, 2\n", ErrStudySyntax, 0, "", []string{"key: value"}},
+		{"two documents", "seed: 1\n---\nseed: 2\n", ErrStudySyntax, 2, "", []string{"second YAML document", "'---'"}},
+		{"root is a list", "- seed: 1\n", ErrStudySyntax, 1, "", []string{"found a list", "iterations: 1000"}},
+		{"root is text", "hello\n", ErrStudySyntax, 1, "", []string{`"hello"`}},
+		{"key is a list", "[a]: 1\n", ErrStudySyntax, 1, "", []string{"plain name"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			st, err := ParseStudy(strings.NewReader(tc.in), "study.yaml", "/b")
+			if st != nil {
+				t.Errorf("study returned with an error")
+			}
+			checkStudyError(t, err, tc.is, "study.yaml", tc.line, tc.key, tc.contains)
+		})
+	}
+}
+
+func checkStudyError(t *testing.T, err error, want error, file string, line int, key string, fragments []string) {
+	t.Helper()
+	if err == nil {
+		t.Fatalf("no error, want %v", want)
+	}
+	if !errors.Is(err, want) {
+		t.Fatalf("error %q does not wrap %q", err, want)
+	}
+	var se *StudyError
+	if !errors.As(err, &se) {
+		t.Fatalf("error %q is not a *StudyError", err)
+	}
+	if se.File != file || se.Key != key || se.Line != line {
+		t.Fatalf("StudyError{File:%q Line:%d Key:%q}, want {%q %d %q}; message %q", se.File, se.Line, se.Key, file, line, key, err)
+	}
+	msg := err.Error()
+	if !strings.HasPrefix(msg, "inputs: "+file) || strings.Count(msg, "inputs:") != 1 {
+		t.Errorf("message %q lacks a single package prefix and the file", msg)
+	}
+	if line > 0 && !strings.Contains(msg, fmt.Sprintf(" line %d", line)) {
+		t.Errorf("message %q does not name line %d", msg, line)
+	}
+	if key != "" && !strings.Contains(msg, fmt.Sprintf("key %q", key)) {
+		t.Errorf("message %q does not name key %q", msg, key)
+	}
+	for _, f := range fragments {
+		if !strings.Contains(msg, f) {
+			t.Errorf("message %q lacks %q", msg, f)
+		}
+	}
+}
+
+func TestQuoteHintOnlyWhenQuoted(t *testing.T) {
+	_, err := ParseStudy(strings.NewReader("iterations: many\n"), "s.yaml", "")
+	if err == nil || strings.Contains(err.Error(), "quotes") {
+		t.Fatalf("unquoted value got quote advice: %v", err)
+	}
+}
+
+func TestBadListTextWrapsBoth(t *testing.T) {
+	_, err := ParseStudy(strings.NewReader("e: \"5,x\"\n"), "s.yaml", "")
+	if !errors.Is(err, ErrBadValue) || !errors.Is(err, ErrFloatList) {
+		t.Fatalf("got %v", err)
+	}
+}
+
+func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
+	dir := t.TempDir()
+	sub := filepath.Join(dir, "studies")
+	if err := os.Mkdir(sub, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(sub, "puma.yaml")
+	abs := filepath.Join(dir, "abs.csv")
+	body := "model: [m=../models/m.tif]\noccurrences: " + abs + "\nregion: r.gpkg\nextra: [x=./x.gpkg]\nout: ../out\n"
+	if err := os.WriteFile(path, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	st, err := LoadStudy(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := &Study{
+		Model:       []string{"m=" + filepath.Join(dir, "models", "m.tif")},
+		Occurrences: ptr(abs),
+		Region:      ptr(filepath.Join(sub, "r.gpkg")),
+		Extra:       []string{"x=" + filepath.Join(sub, "x.gpkg")},
+		Out:         ptr(filepath.Join(dir, "out")),
+	}
+	if !reflect.DeepEqual(st, want) {
+		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
+	}
+
+	t.Run("error names path", func(t *testing.T) {
+		bad := filepath.Join(sub, "bad.yaml")
+		if err := os.WriteFile(bad, []byte("iterations: 10\nbogus: 1\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, err := LoadStudy(bad)
+		checkStudyError(t, err, ErrUnknownKey, bad, 2, "bogus", nil)
+	})
+	t.Run("missing file", func(t *testing.T) {
+		_, err := LoadStudy(filepath.Join(sub, "none.yaml"))
+		if !errors.Is(err, os.ErrNotExist) || !strings.HasPrefix(err.Error(), "inputs: ") {
+			t.Fatalf("got %v", err)
+		}
+	})
+}
+
+// TestStudyKeysMatchStruct checks that the yaml tags of Study are exactly
+// StudyKeys in order, and that every key decodes and has a flag form.
+func TestStudyKeysMatchStruct(t *testing.T) {
+	typ := reflect.TypeOf(Study{})
+	keys := StudyKeys()
+	if typ.NumField() != len(keys) {
+		t.Fatalf("%d fields, %d keys", typ.NumField(), len(keys))
+	}
+	for i, k := range keys {
+		if tag := typ.Field(i).Tag.Get("yaml"); tag != k {
+			t.Errorf("field %s has tag %q, key list has %q", typ.Field(i).Name, tag, k)
+		}
+	}
+	full := fullStudyWant("/b")
+	for _, k := range keys {
+		if _, ok := full.flagValues(k, func(float64) string { return "" }); !ok {
+			t.Errorf("key %q absent from the full study", k)
+		}
+	}
+	keys[0] = "changed"
+	if StudyKeys()[0] != "model" {
+		t.Error("StudyKeys shares storage with the package")
+	}
+}
+
+func TestParseNamedPath(t *testing.T) {
+	cases := []struct {
+		name, in, wantName, wantPath string
+		wantErr                      string // fragment; "" means success
+	}{
+		{"simple", "maxent=models/m.tif", "maxent", "models/m.tif", ""},
+		{"allowed characters", "A-b_c.9=x", "A-b_c.9", "x", ""},
+		{"first = splits", "m=a=b.tif", "m", "a=b.tif", ""},
+		{"spaces trimmed", "  m =  p.tif ", "m", "p.tif", ""},
+		{"40 characters", strings.Repeat("a", 40) + "=p", strings.Repeat("a", 40), "p", ""},
+		{"windows path", `m=C:\data\m.tif`, "m", `C:\data\m.tif`, ""},
+		{"41 characters", strings.Repeat("a", 41) + "=p", "", "", "is not allowed"},
+		{"no =", "m.tif", "", "", "has no '='"},
+		{"empty name", "=p.tif", "", "", "no NAME"},
+		{"empty path", "m= ", "", "", "no PATH"},
+		{"bad character", "m/n=p", "", "", `name "m/n"`},
+		{"empty", "", "", "", "has no '='"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			n, p, err := ParseNamedPath(tc.in)
+			if tc.wantErr == "" {
+				if err != nil || n != tc.wantName || p != tc.wantPath {
+					t.Fatalf("got (%q, %q, %v), want (%q, %q)", n, p, err, tc.wantName, tc.wantPath)
+				}
+				return
+			}
+			if !errors.Is(err, ErrNamedPath) || !strings.Contains(err.Error(), tc.wantErr) ||
+				!strings.Contains(err.Error(), "NAME=PATH") || !strings.HasPrefix(err.Error(), "inputs: ") {
+				t.Fatalf("error %v, want one containing %q and the advice", err, tc.wantErr)
+			}
+		})
+	}
+}
+
+func TestParseFloatList(t *testing.T) {
+	cases := []struct {
+		name    string
+		in      string
+		want    []float64
+		wantErr string
+	}{
+		{"three", "10,25,50", []float64{10, 25, 50}, ""},
+		{"spaces", " 10 , 25.5,\t50 ", []float64{10, 25.5, 50}, ""},
+		{"one", "5", []float64{5}, ""},
+		{"signs and exponent", "-1,+2,3e-1", []float64{-1, 2, 0.3}, ""},
+		{"empty", "", nil, ""},
+		{"blank", "   ", nil, ""},
+		{"empty item", "10,,20", nil, "item 2 of \"10,,20\" is empty"},
+		{"trailing comma", "10,", nil, "item 2"},
+		{"not a number", "10,abc", nil, `item 2 "abc" is not a finite number`},
+		{"nan", "NaN", nil, `item 1 "NaN"`},
+		{"inf", "1,inf", nil, `item 2 "inf"`},
+		{"space separated", "10 20", nil, `item 1 "10 20"`},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			got, err := ParseFloatList("region-buffers", tc.in)
+			if tc.wantErr == "" {
+				if err != nil || !reflect.DeepEqual(got, tc.want) {
+					t.Fatalf("got (%v, %v), want %v", got, err, tc.want)
+				}
+				return
+			}
+			msg := fmt.Sprint(err)
+			if !errors.Is(err, ErrFloatList) || !strings.Contains(msg, "--region-buffers") ||
+				!strings.Contains(msg, tc.wantErr) || !strings.Contains(msg, "for example --region-buffers=10,25,50") {
+				t.Fatalf("error %q, want one naming the flag and containing %q", msg, tc.wantErr)
+			}
+		})
+	}
+}
+
+// newFlags defines flags the way a command could: repeatable NAME=PATH
+// flags as string arrays, number lists as text read by ParseFloatList (one
+// as a float64 slice), and plain typed flags for the rest. It uses cobra's
+// flag set, so Apply is checked against the real flag library.
+func newFlags() *cobra.Command {
+	cmd := &cobra.Command{Use: "t"}
+	fs := cmd.Flags()
+	fs.StringArray("model", nil, "")
+	fs.StringArray("extra", nil, "")
+	for _, k := range []string{"occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field", "out"} {
+		fs.String(k, "", "")
+	}
+	fs.String("ecoregion-crs-unused", "", "")
+	fs.Int("ecoregion-min-points", 1, "")
+	fs.Int("iterations", 500, "")
+	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif"} {
+		fs.Bool(k, false, "")
+	}
+	for _, k := range []string{"region-buffers", "point-buffers", "hull-buffers", "e"} {
+		fs.String(k, "1,2", "")
+	}
+	fs.Float64Slice("thresholds", []float64{0}, "")
+	fs.Float64("fraction", 0.5, "")
+	fs.Uint64("seed", 1, "")
+	return cmd
+}
+
+func TestApply(t *testing.T) {
+	t.Run("study fills unset flags, command line wins", func(t *testing.T) {
+		cmd := newFlags()
+		fs := cmd.Flags()
+		if err := fs.Parse([]string{"--model", "cli=cli.tif", "--iterations=7", "--e=1", "--no-thin=false"}); err != nil {
+			t.Fatal(err)
+		}
+		st := fullStudyWant("/b")
+		if err := st.Apply(fs); err != nil {
+			t.Fatal(err)
+		}
+		model, _ := fs.GetStringArray("model")
+		extra, _ := fs.GetStringArray("extra")
+		it, _ := fs.GetInt("iterations")
+		e, _ := fs.GetString("e")
+		noThin, _ := fs.GetBool("no-thin")
+		clip, _ := fs.GetBool("ecoregion-clip")
+		rb, _ := fs.GetString("region-buffers")
+		hb, _ := fs.GetString("hull-buffers")
+		th, _ := fs.GetFloat64Slice("thresholds")
+		fr, _ := fs.GetFloat64("fraction")
+		seed, _ := fs.GetUint64("seed")
+		region, _ := fs.GetString("region")
+		crs, _ := fs.GetString("occurrences-crs")
+		mp, _ := fs.GetInt("ecoregion-min-points")
+		got := fmt.Sprintf("%q %q %d %q %v %v %q %q %v %v %d %q %q %d", model, extra, it, e, noThin, clip, rb, hb, th, fr, seed, region, crs, mp)
+		want := fmt.Sprintf("%q %q %d %q %v %v %q %q %v %v %d %q %q %d",
+			[]string{"cli=cli.tif"}, []string{"mask=/b/masks/mask.gpkg"}, 7, "1", false, true, "10,25.5,50", "", []float64{0, 0.1}, 0.5,
+			uint64(18446744073709551615), "/b/region.gpkg", "EPSG:32633", 3)
+		if got != want {
+			t.Fatalf("flags after Apply\n got %s\nwant %s", got, want)
+		}
+		// The list text round-trips through ParseFloatList.
+		l, err := ParseFloatList("region-buffers", rb)
+		if err != nil || !reflect.DeepEqual(l, st.RegionBuffers) {
+			t.Fatalf("round trip %v %v", l, err)
+		}
+	})
+	t.Run("absent settings leave defaults", func(t *testing.T) {
+		cmd := newFlags()
+		fs := cmd.Flags()
+		if err := fs.Parse(nil); err != nil {
+			t.Fatal(err)
+		}
+		if err := (&Study{Seed: ptr(uint64(9))}).Apply(fs); err != nil {
+			t.Fatal(err)
+		}
+		it, _ := fs.GetInt("iterations")
+		seed, _ := fs.GetUint64("seed")
+		rb, _ := fs.GetString("region-buffers")
+		if it != 500 || seed != 9 || rb != "1,2" || fs.Changed("iterations") {
+			t.Fatalf("iterations %d seed %d region-buffers %q", it, seed, rb)
+		}
+	})
+	t.Run("several models append", func(t *testing.T) {
+		cmd := newFlags()
+		fs := cmd.Flags()
+		_ = fs.Parse(nil)
+		st := &Study{Model: []string{"a=a.tif", "b=b.tif"}}
+		if err := st.Apply(fs); err != nil {
+			t.Fatal(err)
+		}
+		model, _ := fs.GetStringArray("model")
+		if !reflect.DeepEqual(model, []string{"a=a.tif", "b=b.tif"}) {
+			t.Fatalf("model %q", model)
+		}
+	})
+	t.Run("missing flag is an error naming the key", func(t *testing.T) {
+		cmd := &cobra.Command{Use: "t"}
+		err := (&Study{Iterations: ptr(3)}).Apply(cmd.Flags())
+		if err == nil || !strings.Contains(err.Error(), `study key "iterations"`) || !strings.HasPrefix(err.Error(), "inputs: ") {
+			t.Fatalf("got %v", err)
+		}
+	})
+	t.Run("nil study", func(t *testing.T) {
+		var st *Study
+		if err := st.Apply(newFlags().Flags()); err != nil {
+			t.Fatal(err)
+		}
+	})
+}
+
+func TestStudyErrorFormat(t *testing.T) {
+	e := &StudyError{File: "s.yaml", Line: 4, Key: "seed", Err: fmt.Errorf("%w: x", ErrBadValue)}
+	if got, want := e.Error(), `inputs: s.yaml line 4, key "seed": bad value in study file: x`; got != want {
+		t.Fatalf("got %q want %q", got, want)
+	}
+	if !errors.Is(e, ErrBadValue) {
+		t.Fatal("Unwrap does not reach the sentinel")
+	}
+}
+
+func TestEditDistance(t *testing.T) {
+	cases := []struct {
+		a, b string
+		want int // textbook Levenshtein distances, by construction
+	}{
+		{"", "", 0}, {"a", "", 1}, {"kitten", "sitting", 3}, {"flaw", "lawn", 2}, {"seed", "seed", 0},
+	}
+	for _, tc := range cases {
+		t.Run(tc.a+"-"+tc.b, func(t *testing.T) {
+			if got := editDistance(tc.a, tc.b); got != tc.want {
+				t.Fatalf("got %d want %d", got, tc.want)
+			}
+		})
+	}
+}
+
+func BenchmarkParseStudy(b *testing.B) {
+	b.Run("keys=21", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, err := ParseStudy(strings.NewReader(fullStudy), "study.yaml", "/b"); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}

@@ -1,0 +1,346 @@
+// Package pass reads model rasters block by block and feeds every valid
+// cell to the accumulators of every extent holding it: the one streaming
+// scoring pass of a run. Blocks are read in the raster's natural block size
+// by one reader and scored by parallel workers, each with its own
+// accumulators, merged at the end. Accumulators hold integer sums, so the
+// merged result does not depend on the number of workers or the order in
+// which blocks finish.
+package pass
+
+import (
+	"fmt"
+	"math"
+	"math/bits"
+	"runtime"
+	"sync"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent"
+	"areasweep/metrics"
+)
+
+// AreaUnitsPerKm2 converts km^2 to the integer area units the accumulators
+// sum: 1/4096 m^2, so that the whole Earth (5.1e14 m^2) is 2.1e18 units,
+// inside int64, while a 30 m cell keeps 7 significant digits.
+const AreaUnitsPerKm2 = 1e6 * 4096
+
+// Raster is an open single-band model raster.
+type Raster struct {
+	Path      string
+	ds        *godal.Dataset
+	band      godal.Band
+	nodata    float64
+	hasNodata bool
+}
+
+// Open opens the first band of the raster at path.
+func Open(path string) (*Raster, error) {
+	extent.Register()
+	ds, err := godal.Open(path, godal.RasterOnly())
+	if err != nil {
+		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read: %w", path, err)
+	}
+	bands := ds.Bands()
+	if len(bands) == 0 {
+		ds.Close()
+		return nil, fmt.Errorf("pass: %s has no band", path)
+	}
+	r := &Raster{Path: path, ds: ds, band: bands[0]}
+	r.nodata, r.hasNodata = r.band.NoData()
+	return r, nil
+}
+
+// Close closes the raster.
+func (r *Raster) Close() error { return r.ds.Close() }
+
+// valid reports whether v is a value to score.
+func (r *Raster) valid(v float64) bool {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return false
+	}
+	return !r.hasNodata || v != r.nodata
+}
+
+// Sample returns the raster's value at each cell index (row*width+col) and
+// whether it is valid. Cells < 0 are reported invalid.
+func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) {
+	vals := make([]float64, len(cells))
+	ok := make([]bool, len(cells))
+	buf := make([]float64, 1)
+	for i, c := range cells {
+		if c < 0 {
+			continue
+		}
+		if err := r.band.Read(c%g.Width, c/g.Width, buf, 1, 1); err != nil {
+			return nil, nil, fmt.Errorf("pass: read %s at column %d row %d: %w", r.Path, c%g.Width, c/g.Width, err)
+		}
+		vals[i], ok[i] = buf[0], r.valid(buf[0])
+	}
+	return vals, ok, nil
+}
+
+// ApproxRange returns GDAL's approximate minimum and maximum of the band
+// (from overviews or a sample of blocks): the range of the fine histogram.
+// It does not need a full read.
+func (r *Raster) ApproxRange() (lo, hi float64, err error) {
+	st, err := r.band.ComputeStatistics(godal.Approximate())
+	if err != nil {
+		return 0, 0, fmt.Errorf("pass: statistics of %s: %w", r.Path, err)
+	}
+	return st.Min, st.Max, nil
+}
+
+// block is one block of cells read from the raster.
+type block struct {
+	x0, y0, w, h int
+	buf          []float64
+}
+
+// each reads every block in order and sends it to out; buffers come back
+// through free. It stops at the first read error.
+func (r *Raster) each(out chan<- block, free chan []float64, size int) error {
+	defer close(out)
+	st := r.band.Structure()
+	for b, ok := st.FirstBlock(), true; ok; b, ok = b.Next() {
+		buf := <-free
+		buf = buf[:b.W*b.H]
+		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
+			return fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
+		}
+		out <- block{b.X0, b.Y0, b.W, b.H, buf}
+	}
+	return nil
+}
+
+// Blocks returns the number of blocks of the raster, for progress.
+func (r *Raster) Blocks() int {
+	st := r.band.Structure()
+	nx := (st.SizeX + st.BlockSizeX - 1) / st.BlockSizeX
+	ny := (st.SizeY + st.BlockSizeY - 1) / st.BlockSizeY
+	return nx * ny
+}
+
+// ReadValid returns the bitset of cells with a valid value.
+func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (extent.Valid, error) {
+	v := extent.NewValid(g.Cells())
+	blocks := make(chan block)
+	free := make(chan []float64, 1)
+	st := r.band.Structure()
+	free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
+	errc := make(chan error, 1)
+	go func() { errc <- r.each(blocks, free, 0) }()
+	done, total := 0, r.Blocks()
+	for b := range blocks {
+		for y := 0; y < b.h; y++ {
+			base := (b.y0+y)*g.Width + b.x0
+			for x := 0; x < b.w; x++ {
+				if r.valid(b.buf[y*b.w+x]) {
+					v.Set(base + x)
+				}
+			}
+		}
+		free <- b.buf
+		done++
+		if progress != nil {
+			progress(done, total)
+		}
+	}
+	return v, <-errc
+}
+
+// Stats are whole-raster facts gathered in the pass.
+type Stats struct {
+	// Min and Max are the smallest and largest valid values on cells of any
+	// extent.
+	Min, Max float64
+	// FloorArea is the area (units) of valid cells at value Min.
+	FloorArea int64
+	// Area is the area (units) of valid cells in any extent.
+	Area int64
+}
+
+func (s *Stats) merge(o Stats) {
+	if o.Area == 0 {
+		return
+	}
+	if s.Area == 0 {
+		*s = o
+		return
+	}
+	switch {
+	case o.Min < s.Min:
+		s.Min, s.FloorArea = o.Min, o.FloorArea
+	case o.Min == s.Min:
+		s.FloorArea += o.FloorArea
+	}
+	s.Max = math.Max(s.Max, o.Max)
+	s.Area += o.Area
+}
+
+// Preview asks the pass to copy a coarse sample of the raster: preview cell
+// (pc,pr) takes the value of source cell (floor((pc+0.5)*W/PW),
+// floor((pr+0.5)*H/PH)); NaN marks no data.
+type Preview struct {
+	Width, Height int
+	Values        []float64
+	srcCol        []int // source column -> preview column, -1 when not sampled
+	srcRow        []int
+}
+
+// NewPreview makes a preview at most maxSide cells on its longer side.
+func NewPreview(g *extent.Grid, maxSide int) *Preview {
+	s := math.Max(float64(g.Width), float64(g.Height)) / float64(maxSide)
+	if s < 1 {
+		s = 1
+	}
+	pw := max(1, int(float64(g.Width)/s))
+	ph := max(1, int(float64(g.Height)/s))
+	p := &Preview{Width: pw, Height: ph, Values: make([]float64, pw*ph), srcCol: make([]int, g.Width), srcRow: make([]int, g.Height)}
+	for i := range p.Values {
+		p.Values[i] = math.NaN()
+	}
+	for i := range p.srcCol {
+		p.srcCol[i] = -1
+	}
+	for i := range p.srcRow {
+		p.srcRow[i] = -1
+	}
+	for pc := 0; pc < pw; pc++ {
+		p.srcCol[int((float64(pc)+0.5)*float64(g.Width)/float64(pw))] = pc
+	}
+	for pr := 0; pr < ph; pr++ {
+		p.srcRow[int((float64(pr)+0.5)*float64(g.Height)/float64(ph))] = pr
+	}
+	return p
+}
+
+// SourceCell returns the source cell index of preview cell i.
+func (p *Preview) SourceCell(g *extent.Grid, i int) int {
+	pc, pr := i%p.Width, i/p.Width
+	return int((float64(pr)+0.5)*float64(g.Height)/float64(p.Height))*g.Width + int((float64(pc)+0.5)*float64(g.Width)/float64(p.Width))
+}
+
+// Options tune a scoring pass.
+type Options struct {
+	// Workers is the number of scoring goroutines; 0 means GOMAXPROCS.
+	Workers int
+	// Progress, when set, is called after each block from one goroutine.
+	Progress func(done, total int)
+	// Preview, when set, receives the coarse copy of this raster.
+	Preview *Preview
+}
+
+// Score streams the raster once and returns one accumulator per family
+// member (nil for members with no bit) and the pass statistics.
+func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	n := len(fam.Members)
+	st := r.band.Structure()
+	blocks := make(chan block, workers)
+	free := make(chan []float64, 2*workers)
+	for i := 0; i < 2*workers; i++ {
+		free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
+	}
+	type partial struct {
+		accs  []*metrics.Accumulator
+		stats Stats
+	}
+	parts := make([]partial, workers)
+	doneBlocks := make(chan struct{}, workers)
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		accs := make([]*metrics.Accumulator, n)
+		for k := range accs {
+			accs[k] = layout.NewAccumulator()
+		}
+		parts[w].accs = accs
+		wg.Add(1)
+		go func(p *partial) {
+			defer wg.Done()
+			areas := make([]float64, g.Width)
+			weights := make([]int64, g.Width)
+			for b := range blocks {
+				r.scoreBlock(g, fam, layout, b, p.accs, &p.stats, areas, weights, opt.Preview)
+				free <- b.buf
+				doneBlocks <- struct{}{}
+			}
+		}(&parts[w])
+	}
+	errc := make(chan error, 1)
+	go func() { errc <- r.each(blocks, free, 0) }()
+	go func() { wg.Wait(); close(doneBlocks) }()
+	done, total := 0, r.Blocks()
+	for range doneBlocks {
+		done++
+		if opt.Progress != nil {
+			opt.Progress(done, total)
+		}
+	}
+	if err := <-errc; err != nil {
+		return nil, Stats{}, err
+	}
+	out := parts[0].accs
+	stats := parts[0].stats
+	for w := 1; w < workers; w++ {
+		for k := range out {
+			if err := out[k].Merge(parts[w].accs[k]); err != nil {
+				return nil, Stats{}, fmt.Errorf("pass: internal: %w", err)
+			}
+		}
+		stats.merge(parts[w].stats)
+	}
+	return out, stats, nil
+}
+
+// scoreBlock adds every valid cell of b to the accumulators of its extents.
+func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview) {
+	for y := 0; y < b.h; y++ {
+		row := b.y0 + y
+		areas = g.RowAreas(row, areas)
+		for x := 0; x < b.w; x++ {
+			weights[x] = int64(math.Round(areas[b.x0+x] * AreaUnitsPerKm2))
+		}
+		base := row*g.Width + b.x0
+		vals := b.buf[y*b.w : (y+1)*b.w]
+		mask := fam.Mask[base : base+b.w]
+		prow := -1
+		if pv != nil {
+			prow = pv.srcRow[row]
+		}
+		for x, v := range vals {
+			if prow >= 0 {
+				if pc := pv.srcCol[b.x0+x]; pc >= 0 && r.valid(v) {
+					pv.Values[prow*pv.Width+pc] = v
+				}
+			}
+			m := mask[x]
+			if m == 0 || !r.valid(v) {
+				continue
+			}
+			w := weights[x]
+			switch {
+			case st.Area == 0 || v < st.Min:
+				if st.Area == 0 {
+					st.Max = v
+				}
+				st.Min, st.FloorArea = v, w
+			case v == st.Min:
+				st.FloorArea += w
+			}
+			if v > st.Max {
+				st.Max = v
+			}
+			st.Area += w
+			bin, hist := layout.Locate(v)
+			for m != 0 {
+				k := bits.TrailingZeros64(m)
+				m &= m - 1
+				accs[k].AddLocated(bin, hist, v, w)
+			}
+		}
+	}
+}

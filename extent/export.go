@@ -1,0 +1,207 @@
+package extent
+
+import (
+	"fmt"
+	"os"
+
+	"github.com/airbusgeo/godal"
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/encoding/wkb"
+)
+
+// LayerName is the name of the GeoPackage layer that holds the family.
+const LayerName = "extents"
+
+// memberRaster returns an in-memory Byte raster of the grid with 1 on the
+// cells of member k and 0 (no data) elsewhere.
+func (f *Family) memberRaster(k int) (*godal.Dataset, error) {
+	g := f.Grid
+	ds, err := godal.Create(godal.Memory, "", 1, godal.Byte, g.Width, g.Height)
+	if err != nil {
+		return nil, err
+	}
+	if err := ds.SetGeoTransform(g.GeoTransform); err != nil {
+		ds.Close()
+		return nil, err
+	}
+	if err := ds.SetSpatialRef(g.srs); err != nil {
+		ds.Close()
+		return nil, err
+	}
+	f.fillMemberBand(ds.Bands()[0], k)
+	return ds, nil
+}
+
+func (f *Family) fillMemberBand(band godal.Band, k int) error {
+	g := f.Grid
+	bit := uint64(1) << uint(k)
+	row := make([]byte, g.Width)
+	for r := 0; r < g.Height; r++ {
+		base := r * g.Width
+		for c := range row {
+			row[c] = 0
+			if f.Mask[base+c]&bit != 0 {
+				row[c] = 1
+			}
+		}
+		if err := band.Write(0, r, row, g.Width, 1); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// Outline returns member k as polygons in the grid CRS: the union of its
+// cells, traced along cell edges.
+func (f *Family) Outline(k int) (orb.MultiPolygon, error) {
+	ds, err := f.memberRaster(k)
+	if err != nil {
+		return nil, fmt.Errorf("extent: outline of %s: %w", f.Members[k].ID, err)
+	}
+	defer ds.Close()
+	band := ds.Bands()[0]
+	if err := band.SetNoData(0); err != nil {
+		return nil, err
+	}
+	vds, err := godal.CreateVector(godal.Memory, "")
+	if err != nil {
+		return nil, err
+	}
+	defer vds.Close()
+	layer, err := vds.CreateLayer("cells", f.Grid.srs, godal.GTPolygon)
+	if err != nil {
+		return nil, err
+	}
+	if err := band.Polygonize(layer); err != nil {
+		return nil, fmt.Errorf("extent: outline of %s: %w", f.Members[k].ID, err)
+	}
+	var mp orb.MultiPolygon
+	layer.ResetReading()
+	for {
+		ft := layer.NextFeature()
+		if ft == nil {
+			break
+		}
+		b, err := ft.Geometry().WKB()
+		ft.Close()
+		if err != nil {
+			return nil, err
+		}
+		gm, err := wkb.Unmarshal(b)
+		if err != nil {
+			return nil, err
+		}
+		switch v := gm.(type) {
+		case orb.Polygon:
+			mp = append(mp, v)
+		case orb.MultiPolygon:
+			mp = append(mp, v...)
+		}
+	}
+	return mp, nil
+}
+
+// WriteGeoPackage writes every member with Status "ok" as one multipolygon
+// feature of layer "extents" in a new GeoPackage at path, with attributes
+// id, kind, params, status, cells and area_km2. path must not exist.
+func (f *Family) WriteGeoPackage(path string) error {
+	Register()
+	if _, err := os.Stat(path); err == nil {
+		return fmt.Errorf("extent: %s exists", path)
+	}
+	ds, err := godal.CreateVector(godal.GeoPackage, path)
+	if err != nil {
+		return fmt.Errorf("extent: create %s: %w", path, err)
+	}
+	fields := []*godal.FieldDefinition{
+		godal.NewFieldDefinition("id", godal.FTString),
+		godal.NewFieldDefinition("kind", godal.FTString),
+		godal.NewFieldDefinition("params", godal.FTString),
+		godal.NewFieldDefinition("status", godal.FTString),
+		godal.NewFieldDefinition("cells", godal.FTInt64),
+		godal.NewFieldDefinition("area_km2", godal.FTReal),
+	}
+	opts := make([]godal.CreateLayerOption, len(fields))
+	for i, fd := range fields {
+		opts[i] = fd
+	}
+	layer, err := ds.CreateLayer(LayerName, f.Grid.srs, godal.GTMultiPolygon, opts...)
+	if err != nil {
+		ds.Close()
+		return fmt.Errorf("extent: create layer in %s: %w", path, err)
+	}
+	for k, m := range f.Members {
+		if m.Status != StatusOK {
+			continue
+		}
+		mp, err := f.Outline(k)
+		if err != nil {
+			ds.Close()
+			return err
+		}
+		b, err := wkb.Marshal(mp)
+		if err != nil {
+			ds.Close()
+			return err
+		}
+		geom, err := godal.NewGeometryFromWKB(b, f.Grid.srs)
+		if err != nil {
+			ds.Close()
+			return err
+		}
+		ft, err := layer.NewFeature(geom)
+		geom.Close()
+		if err != nil {
+			ds.Close()
+			return fmt.Errorf("extent: write %s to %s: %w", m.ID, path, err)
+		}
+		fl := ft.Fields()
+		vals := map[string]interface{}{"id": m.ID, "kind": m.Kind, "params": m.Params, "status": m.Status, "cells": m.Cells, "area_km2": m.AreaKm2}
+		for name, v := range vals {
+			if err := ft.SetFieldValue(fl[name], v); err != nil {
+				ds.Close()
+				return fmt.Errorf("extent: set %s of %s: %w", name, m.ID, err)
+			}
+		}
+		if err := layer.UpdateFeature(ft); err != nil {
+			ds.Close()
+			return fmt.Errorf("extent: write %s to %s: %w", m.ID, path, err)
+		}
+		ft.Close()
+	}
+	if err := ds.Close(); err != nil {
+		return fmt.Errorf("extent: close %s: %w", path, err)
+	}
+	return nil
+}
+
+// WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member
+// (1 inside, 0 outside; band description = member id), deflate-compressed.
+func (f *Family) WriteMembershipTIFF(path string) error {
+	Register()
+	g := f.Grid
+	ds, err := godal.Create(godal.GTiff, path, len(f.Members), godal.Byte, g.Width, g.Height,
+		godal.CreationOption("COMPRESS=DEFLATE", "TILED=YES"))
+	if err != nil {
+		return fmt.Errorf("extent: create %s: %w", path, err)
+	}
+	if err := ds.SetGeoTransform(g.GeoTransform); err != nil {
+		ds.Close()
+		return err
+	}
+	if err := ds.SetSpatialRef(g.srs); err != nil {
+		ds.Close()
+		return err
+	}
+	for k, band := range ds.Bands() {
+		if err := band.SetDescription(f.Members[k].ID); err != nil {
+			ds.Close()
+			return err
+		}
+		if err := f.fillMemberBand(band, k); err != nil {
+			ds.Close()
+			return fmt.Errorf("extent: write %s: %w", path, err)
+		}
+	}
+	return ds.Close()
+}

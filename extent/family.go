@@ -1,0 +1,727 @@
+package extent
+
+import (
+	"errors"
+	"fmt"
+	"hash/fnv"
+	"math"
+	"math/bits"
+	"runtime"
+	"sort"
+	"strconv"
+	"sync"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent/geodesy"
+)
+
+// MaxMembers is the largest family: one bit of a uint64 per member.
+const MaxMembers = 64
+
+// Kinds of family member.
+const (
+	KindBase           = "base"
+	KindRegionBuffer   = "region_buffer"
+	KindPointBuffer    = "point_buffer"
+	KindHull           = "hull"
+	KindEcoregions     = "ecoregions"
+	KindWholeRaster    = "whole_raster"
+	KindUser           = "user"
+	StatusOK           = "ok"
+	StatusEmpty        = "empty"
+	StatusDuplicate    = "duplicate"
+	chainRegion        = "region"
+	chainPoints        = "points"
+	chainHull          = "hull"
+	chainEcoregions    = "ecoregions"
+)
+
+// ErrTooManyMembers is returned when the settings ask for more than
+// MaxMembers extents.
+var ErrTooManyMembers = errors.New("extent: more than 64 extents requested; use fewer buffer distances")
+
+// LonLat is a point in WGS84 degrees.
+type LonLat struct{ Lon, Lat float64 }
+
+// Named is a user polygon file with the member id it should get.
+type Named struct{ Name, Path string }
+
+// Spec says which members to build.
+type Spec struct {
+	// Region is the base study region file (required).
+	Region string
+	// RegionBuffersKm grows (positive) or shrinks (negative) the base by
+	// geodesic distances.
+	RegionBuffersKm []float64
+	// Train and Test are the occurrence points in WGS84.
+	Train, Test []LonLat
+	// PointBuffersKm are radii of discs around the training points (or all
+	// points when PointBuffersAll).
+	PointBuffersKm  []float64
+	PointBuffersAll bool
+	// HullBuffersKm lists geodesic buffers of the training points' convex
+	// hull; 0 is the hull itself. Empty means no hull members.
+	HullBuffersKm []float64
+	// Ecoregions is an optional polygon layer with id field EcoregionField.
+	Ecoregions         string
+	EcoregionField     string
+	EcoregionMinPoints int
+	// EcoregionClip adds variants of the ecoregion members clipped to base.
+	EcoregionClip bool
+	// Extra are user polygon files, each a member.
+	Extra []Named
+}
+
+// Member is one extent of the family.
+type Member struct {
+	ID     string
+	Kind   string
+	Params string
+	// Chain names the nested chain the member belongs to, if any; members of
+	// a chain are listed in Family.Chains from smallest to largest.
+	Chain       string
+	Status      string
+	DuplicateOf string
+	Cells       int64
+	AreaKm2     float64
+	TrainPoints int
+	TestPoints  int
+	// Share is AreaKm2 over the area of all valid cells.
+	Share float64
+	// DistanceKm is the buffer distance for buffer members.
+	DistanceKm float64
+}
+
+// Family is the set of extents on the grid. Mask holds one word per cell:
+// bit i is set when the cell belongs to Members[i]. Only valid cells, and
+// only members with Status "ok", have bits set.
+type Family struct {
+	Grid     *Grid
+	Members  []Member
+	Mask     []uint64
+	Chains   map[string][]int
+	Warnings []string
+	Base     Shape
+}
+
+// Valid is a per-cell bitset of the cells with data in the reference model.
+type Valid []uint64
+
+// NewValid returns an empty bitset for n cells.
+func NewValid(n int) Valid { return make(Valid, (n+63)/64) }
+
+// Set marks cell i valid.
+func (v Valid) Set(i int) { v[i>>6] |= 1 << (uint(i) & 63) }
+
+// Has reports whether cell i is valid.
+func (v Valid) Has(i int) bool { return v[i>>6]>>(uint(i)&63)&1 == 1 }
+
+// builder accumulates members while the family is built.
+type builder struct {
+	g     *Grid
+	valid Valid
+	f     *Family
+}
+
+func (b *builder) add(m Member) (bit uint64, err error) {
+	if len(b.f.Members) >= MaxMembers {
+		return 0, ErrTooManyMembers
+	}
+	m.Status = StatusOK
+	b.f.Members = append(b.f.Members, m)
+	return 1 << uint(len(b.f.Members)-1), nil
+}
+
+// Build makes the family on grid g, clipped to the valid cells. trainCells
+// and testCells are the grid cell index of each point (or -1 outside).
+func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
+	f := &Family{Grid: g, Mask: make([]uint64, g.Cells()), Chains: map[string][]int{}}
+	b := &builder{g: g, valid: valid, f: f}
+	if spec.Region == "" {
+		return nil, errors.New("extent: no base region given (--region FILE)")
+	}
+	base, warns, err := ReadShape(spec.Region, g)
+	f.Warnings = append(f.Warnings, warns...)
+	if err != nil {
+		return nil, err
+	}
+	f.Base = base
+	baseBit, err := b.add(Member{ID: "base", Kind: KindBase, Params: "file=" + baseName(spec.Region)})
+	if err != nil {
+		return nil, err
+	}
+	Fill(g, base.Grid, func(row, c0, c1 int) {
+		i := row * g.Width
+		for c := c0; c < c1; c++ {
+			f.Mask[i+c] |= baseBit
+		}
+	})
+	if err := b.regionBuffers(base, baseBit, spec.RegionBuffersKm); err != nil {
+		return nil, err
+	}
+	if len(spec.PointBuffersKm) > 0 {
+		pts := spec.Train
+		which := "training points"
+		if spec.PointBuffersAll {
+			pts = append(append([]LonLat{}, spec.Train...), spec.Test...)
+			which = "all points"
+		}
+		if err := b.pointBuffers(pts, which, spec.PointBuffersKm); err != nil {
+			return nil, err
+		}
+	}
+	if len(spec.HullBuffersKm) > 0 {
+		if err := b.hull(spec.Train, spec.HullBuffersKm); err != nil {
+			return nil, err
+		}
+	}
+	if spec.Ecoregions != "" {
+		if err := b.ecoregions(spec, baseBit, trainCells); err != nil {
+			return nil, err
+		}
+	}
+	for _, x := range spec.Extra {
+		s, warns, err := ReadShape(x.Path, g)
+		f.Warnings = append(f.Warnings, warns...)
+		if err != nil {
+			return nil, err
+		}
+		bit, err := b.add(Member{ID: "user_" + x.Name, Kind: KindUser, Params: "file=" + baseName(x.Path)})
+		if err != nil {
+			return nil, err
+		}
+		Fill(g, s.Grid, func(row, c0, c1 int) {
+			i := row * g.Width
+			for c := c0; c < c1; c++ {
+				f.Mask[i+c] |= bit
+			}
+		})
+	}
+	wholeBit, err := b.add(Member{ID: "whole_raster", Kind: KindWholeRaster, Params: "all valid cells"})
+	if err != nil {
+		return nil, err
+	}
+	for i := range f.Mask {
+		f.Mask[i] |= wholeBit
+	}
+	f.Chains[chainRegion] = append(f.Chains[chainRegion], len(f.Members)-1)
+	b.finish(trainCells, testCells)
+	return f, nil
+}
+
+func baseName(p string) string {
+	for i := len(p) - 1; i >= 0; i-- {
+		if p[i] == '/' || p[i] == '\\' {
+			return p[i+1:]
+		}
+	}
+	return p
+}
+
+// kmID formats a distance for a member id: 50 -> "50km", -50 -> "minus50km".
+func kmID(d float64) string {
+	s := strconv.FormatFloat(math.Abs(d), 'f', -1, 64)
+	if d < 0 {
+		return "minus" + s + "km"
+	}
+	return s + "km"
+}
+
+// regionBuffers adds the base grown or shrunk by each distance. A cell
+// belongs to a grown member when its centre is inside the base or within d
+// of the base boundary, and to a shrunk member when its centre is inside
+// and farther than |d| from the boundary; distances are geodesic on WGS84
+// to the boundary densified at a quarter of a cell.
+func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error {
+	if len(ds) == 0 {
+		b.f.Chains[chainRegion] = []int{0}
+		return nil
+	}
+	ds = sortedUnique(ds)
+	var lats, lons []float64
+	step := b.g.CellSizeKm() * 1000 / 4
+	for _, p := range base.LonLat {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				la, lo := geodesy.Densify(r[i-1][1], r[i-1][0], r[i][1], r[i][0], step)
+				lats = append(lats, la...)
+				lons = append(lons, lo...)
+			}
+		}
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: base region boundary: %w", err)
+	}
+	type buf struct {
+		bit uint64
+		d   float64 // metres, signed
+	}
+	var bufs []buf
+	var chain []int
+	maxD := 0.0
+	for _, d := range ds {
+		if d == 0 {
+			continue
+		}
+		bit, err := b.add(Member{ID: "region_" + kmID(d), Kind: KindRegionBuffer, Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
+		if err != nil {
+			return err
+		}
+		bufs = append(bufs, buf{bit, d * 1000})
+		maxD = math.Max(maxD, math.Abs(d)*1000)
+	}
+	// Chain order: shrunk (most negative first), base, grown.
+	for _, bf := range bufs {
+		if bf.d < 0 {
+			chain = append(chain, memberIndex(bf.bit))
+		}
+	}
+	chain = append(chain, 0)
+	b.f.Members[0].Chain = chainRegion
+	for _, bf := range bufs {
+		if bf.d > 0 {
+			chain = append(chain, memberIndex(bf.bit))
+		}
+	}
+	b.f.Chains[chainRegion] = chain
+	reach := newReach(lats, lons, maxD)
+	b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+		inside := b.f.Mask[i]&baseBit != 0
+		for _, bf := range bufs {
+			if bf.d > 0 && (inside || dist <= bf.d) || bf.d < 0 && inside && dist > -bf.d {
+				b.f.Mask[i] |= bf.bit
+			}
+		}
+	})
+	return nil
+}
+
+func memberIndex(bit uint64) int { return bits.TrailingZeros64(bit) }
+
+// pointBuffers adds, for each radius, the union of geodesic discs around pts.
+func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
+	ds = sortedUnique(ds)
+	lats, lons := splitLL(pts)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: point buffers: %w", err)
+	}
+	var bits []uint64
+	var dm []float64
+	maxD := 0.0
+	for _, d := range ds {
+		if d <= 0 {
+			return fmt.Errorf("extent: point buffer distance %g km must be positive", d)
+		}
+		bit, err := b.add(Member{ID: "points_" + kmID(d), Kind: KindPointBuffer, Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
+		if err != nil {
+			return err
+		}
+		b.f.Chains[chainPoints] = append(b.f.Chains[chainPoints], memberIndex(bit))
+		bits = append(bits, bit)
+		dm = append(dm, d*1000)
+		maxD = math.Max(maxD, d*1000)
+	}
+	reach := newReach(lats, lons, maxD)
+	b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+		for k, d := range dm {
+			if dist <= d {
+				b.f.Mask[i] |= bits[k]
+			}
+		}
+	})
+	return nil
+}
+
+// distanceField calls set(i, dist) for every cell i whose centre is within
+// maxD metres (by the reach box) of a site in ix, and set(i, +Inf) for the
+// other cells, rows in parallel. Each call writes only its own cell.
+func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, set func(i int, dist float64)) {
+	g := b.g
+	rows := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			lons := make([]float64, g.Width)
+			lats := make([]float64, g.Width)
+			for row := range rows {
+				g.RowLonLat(row, lons, lats)
+				base := row * g.Width
+				for c := 0; c < g.Width; c++ {
+					d := math.Inf(1)
+					if !math.IsNaN(lats[c]) && reach.has(lons[c], lats[c]) {
+						_, d = ix.Nearest(lats[c], lons[c], maxD)
+					}
+					set(base+c, d)
+				}
+			}
+		}()
+	}
+	for row := 0; row < g.Height; row++ {
+		rows <- row
+	}
+	close(rows)
+	wg.Wait()
+}
+
+// reachBox is a conservative longitude/latitude box around sites expanded
+// by a distance: cells outside it are certainly farther than the distance.
+type reachBox struct {
+	south, north float64
+	lonC, lonH   float64 // centre and half-width of the longitude span; lonH >= 180 means all
+}
+
+func newReach(lats, lons []float64, maxD float64) reachBox {
+	south, north := 90.0, -90.0
+	for _, la := range lats {
+		south = math.Min(south, la)
+		north = math.Max(north, la)
+	}
+	// 1 degree of latitude is at least 110.57 km on WGS84 (at the equator).
+	dlat := maxD/110000 + 1e-9
+	rb := reachBox{south: south - dlat, north: north + dlat}
+	polar := math.Max(math.Abs(rb.south), math.Abs(rb.north))
+	if polar >= 89 {
+		rb.lonH = 360
+		return rb
+	}
+	// Smallest longitude arc holding all sites: sort and find the largest gap.
+	ls := append([]float64(nil), lons...)
+	for i := range ls {
+		ls[i] = math.Mod(math.Mod(ls[i], 360)+360, 360)
+	}
+	sort.Float64s(ls)
+	gap, at := 360-ls[len(ls)-1]+ls[0], len(ls)-1
+	for i := 1; i < len(ls); i++ {
+		if d := ls[i] - ls[i-1]; d > gap {
+			gap, at = d, i-1
+		}
+	}
+	start := ls[(at+1)%len(ls)]
+	span := 360 - gap
+	// One degree of longitude at latitude phi is at least
+	// 111.0 km * cos(phi) on WGS84 (the prime-vertical radius exceeds the
+	// equatorial-sphere value times 0.9966 only near the poles, which are
+	// excluded above).
+	dlon := maxD/(110000*math.Cos(polar*math.Pi/180)) + 1e-9
+	rb.lonC = start + span/2
+	rb.lonH = span/2 + dlon
+	return rb
+}
+
+func (r reachBox) has(lon, lat float64) bool {
+	if lat < r.south || lat > r.north {
+		return false
+	}
+	if r.lonH >= 180 {
+		return true
+	}
+	d := math.Mod(math.Abs(lon-r.lonC), 360)
+	if d > 180 {
+		d = 360 - d
+	}
+	return d <= r.lonH
+}
+
+func splitLL(pts []LonLat) (lats, lons []float64) {
+	lats = make([]float64, len(pts))
+	lons = make([]float64, len(pts))
+	for i, p := range pts {
+		lats[i], lons[i] = p.Lat, p.Lon
+	}
+	return lats, lons
+}
+
+func sortedUnique(ds []float64) []float64 {
+	out := append([]float64(nil), ds...)
+	sort.Float64s(out)
+	k := 0
+	for i, d := range out {
+		if i == 0 || d != out[k-1] {
+			out[k] = d
+			k++
+		}
+	}
+	return out[:k]
+}
+
+// ecoregions adds the union of units holding at least k training points,
+// the variant adding units that touch them, and optionally both clipped to
+// the base region.
+func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error {
+	if spec.EcoregionField == "" {
+		return fmt.Errorf("extent: --ecoregions %s needs --ecoregion-field NAME (the unit id field)", spec.Ecoregions)
+	}
+	k := spec.EcoregionMinPoints
+	if k < 1 {
+		k = 1
+	}
+	units, warns, err := ReadUnits(spec.Ecoregions, spec.EcoregionField, b.g)
+	b.f.Warnings = append(b.f.Warnings, warns...)
+	if err != nil {
+		return err
+	}
+	// Training points in grid CRS.
+	lats, lons := splitLL(spec.Train)
+	xs := make([]float64, len(lons))
+	ys := make([]float64, len(lats))
+	b.g.FromLonLat(lons, lats, xs, ys)
+	counts := make([]int, len(units))
+	for i, u := range units {
+		for j := range xs {
+			if !math.IsNaN(xs[j]) && Contains(b.g, u.Shape.Grid, xs[j], ys[j]) {
+				counts[i]++
+			}
+		}
+	}
+	var selected, touching []int
+	var sel *godal.Geometry
+	for i, c := range counts {
+		if c >= k {
+			selected = append(selected, i)
+			if sel == nil {
+				sel = units[i].geom
+			} else if sel, err = sel.Union(units[i].geom); err != nil {
+				return fmt.Errorf("extent: %s: union of units failed: %w", spec.Ecoregions, err)
+			}
+		}
+	}
+	if len(selected) == 0 {
+		b.f.Warnings = append(b.f.Warnings, fmt.Sprintf("no unit of %s holds %d or more training points; no ecoregion extents", spec.Ecoregions, k))
+		return nil
+	}
+	for i := range units {
+		if counts[i] >= k {
+			continue
+		}
+		hit, err := units[i].geom.Intersects(sel)
+		if err != nil {
+			return fmt.Errorf("extent: %s unit %q: %w", spec.Ecoregions, units[i].ID, err)
+		}
+		if hit {
+			touching = append(touching, i)
+		}
+	}
+	ids := func(ix []int) string {
+		s := ""
+		for n, i := range ix {
+			if n > 0 {
+				s += ","
+			}
+			s += units[i].ID
+		}
+		return s
+	}
+	type variant struct {
+		id, params string
+		units      []int
+		clip       bool
+	}
+	name := fmt.Sprintf("ecoregions_k%d", k)
+	vs := []variant{
+		{name, fmt.Sprintf("min_points=%d; units=%s", k, ids(selected)), selected, false},
+		{name + "_touching", fmt.Sprintf("min_points=%d; plus touching units=%s", k, ids(touching)), append(append([]int{}, selected...), touching...), false},
+	}
+	if spec.EcoregionClip {
+		vs = append(vs, variant{vs[0].id + "_clipped", vs[0].params + "; clipped to base", selected, true},
+			variant{vs[1].id + "_clipped", vs[1].params + "; clipped to base", vs[1].units, true})
+	}
+	for _, v := range vs {
+		chain := chainEcoregions
+		if v.clip {
+			chain = chainEcoregions + "_clipped"
+		}
+		bit, err := b.add(Member{ID: v.id, Kind: KindEcoregions, Params: v.params, Chain: chain})
+		if err != nil {
+			return err
+		}
+		b.f.Chains[chain] = append(b.f.Chains[chain], memberIndex(bit))
+		for _, ui := range v.units {
+			Fill(b.g, units[ui].Shape.Grid, func(row, c0, c1 int) {
+				i := row * b.g.Width
+				for c := c0; c < c1; c++ {
+					if !v.clip || b.f.Mask[i+c]&baseBit != 0 {
+						b.f.Mask[i+c] |= bit
+					}
+				}
+			})
+		}
+	}
+	return nil
+}
+
+// finish clips every member to the valid cells, measures it, counts
+// points, marks empty and duplicate members, and checks chain nesting.
+func (b *builder) finish(trainCells, testCells []int) {
+	f, g := b.f, b.g
+	n := len(f.Members)
+	cells := make([]int64, n)
+	area := make([]float64, n)
+	hashes := make([]uint64, n)
+	hs := make([]hashState, n)
+	for i := range hs {
+		hs[i] = newHash()
+	}
+	areas := make([]float64, g.Width)
+	total := 0.0
+	for row := 0; row < g.Height; row++ {
+		areas = g.RowAreas(row, areas)
+		base := row * g.Width
+		for c := 0; c < g.Width; c++ {
+			i := base + c
+			if !b.valid.Has(i) {
+				f.Mask[i] = 0
+				continue
+			}
+			total += areas[c]
+			m := f.Mask[i]
+			for m != 0 {
+				k := bits.TrailingZeros64(m)
+				m &= m - 1
+				cells[k]++
+				area[k] += areas[c]
+				hs[k].add(uint64(i))
+			}
+		}
+	}
+	for k := range f.Members {
+		hashes[k] = hs[k].sum()
+		f.Members[k].Cells = cells[k]
+		f.Members[k].AreaKm2 = area[k]
+		if total > 0 {
+			f.Members[k].Share = area[k] / total
+		}
+	}
+	clear := uint64(0)
+	for k := range f.Members {
+		m := &f.Members[k]
+		if m.Cells == 0 {
+			m.Status = StatusEmpty
+			clear |= 1 << uint(k)
+			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell; not scored", m.ID))
+			continue
+		}
+		for j := 0; j < k; j++ {
+			if f.Members[j].Status == StatusOK && hashes[j] == hashes[k] && cells[j] == cells[k] && b.sameCells(j, k) {
+				m.Status = StatusDuplicate
+				m.DuplicateOf = f.Members[j].ID
+				clear |= 1 << uint(k)
+				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s has exactly the cells of %s; scored once, under %s", m.ID, f.Members[j].ID, f.Members[j].ID))
+				break
+			}
+		}
+	}
+	if clear != 0 {
+		for i := range f.Mask {
+			f.Mask[i] &^= clear
+		}
+	}
+	for _, ci := range trainCells {
+		if ci >= 0 {
+			countBits(f.Mask[ci], func(k int) { f.Members[k].TrainPoints++ })
+		}
+	}
+	for _, ci := range testCells {
+		if ci >= 0 {
+			countBits(f.Mask[ci], func(k int) { f.Members[k].TestPoints++ })
+		}
+	}
+	// Chains: keep only members with Status ok, and check nesting.
+	names := make([]string, 0, len(f.Chains))
+	for name := range f.Chains {
+		names = append(names, name)
+	}
+	sort.Strings(names)
+	for _, name := range names {
+		var kept []int
+		for _, k := range f.Chains[name] {
+			if f.Members[k].Status == StatusOK {
+				kept = append(kept, k)
+			}
+		}
+		for i := 1; i < len(kept); i++ {
+			if !b.nested(kept[i-1], kept[i]) {
+				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s is not inside %s; the %s chain is cut there", f.Members[kept[i-1]].ID, f.Members[kept[i]].ID, name))
+				kept = kept[:i]
+				break
+			}
+		}
+		if len(kept) < 2 {
+			delete(f.Chains, name)
+			continue
+		}
+		f.Chains[name] = kept
+		for _, k := range kept {
+			f.Members[k].Chain = name
+		}
+	}
+	for k := range f.Members {
+		if f.Members[k].Chain != "" {
+			if _, ok := f.Chains[f.Members[k].Chain]; !ok {
+				f.Members[k].Chain = ""
+			}
+		}
+	}
+}
+
+func (b *builder) sameCells(j, k int) bool {
+	bj, bk := uint64(1)<<uint(j), uint64(1)<<uint(k)
+	for _, m := range b.f.Mask {
+		if (m&bj == 0) != (m&bk == 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// nested reports whether every cell of member a is in member b.
+func (b *builder) nested(a, bb int) bool {
+	ba, bbit := uint64(1)<<uint(a), uint64(1)<<uint(bb)
+	for _, m := range b.f.Mask {
+		if m&ba != 0 && m&bbit == 0 {
+			return false
+		}
+	}
+	return true
+}
+
+func countBits(m uint64, fn func(k int)) {
+	for m != 0 {
+		k := bits.TrailingZeros64(m)
+		m &= m - 1
+		fn(k)
+	}
+}
+
+type hashState struct{ h uint64 }
+
+func newHash() hashState { h := fnv.New64a(); return hashState{h.Sum64()} }
+
+// add mixes a cell index into the hash (FNV-1a over the 8 bytes).
+func (s *hashState) add(v uint64) {
+	for i := 0; i < 8; i++ {
+		s.h ^= v & 0xff
+		s.h *= 1099511628211
+		v >>= 8
+	}
+}
+
+func (s *hashState) sum() uint64 { return s.h }
+
+// Chain returns the member indices of the named chain, smallest first.
+func (f *Family) Chain(name string) []int { return f.Chains[name] }
+
+// ChainNames returns the chain names in sorted order.
+func (f *Family) ChainNames() []string {
+	names := make([]string, 0, len(f.Chains))
+	for n := range f.Chains {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return names
+}
+

@@ -1,0 +1,277 @@
+package geodesy
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// randomPoints draws n points with a fixed seed from a mix that stresses the
+// index: uniform on the sphere, within 0.5 deg of the antimeridian, within 2
+// deg of a pole, tight clusters, exact duplicates of earlier points and
+// longitudes written in (180, 360].
+func randomPoints(seed uint64, n int) (lats, lons []float64) {
+	r := rand.New(rand.NewPCG(seed, 0x9e3779b97f4a7c15))
+	lats, lons = make([]float64, n), make([]float64, n)
+	for i := range n {
+		var lat, lon float64
+		switch k := r.IntN(20); {
+		case k < 8: // uniform on the sphere
+			lat = math.Asin(2*r.Float64()-1) * 180 / math.Pi
+			lon = 360*r.Float64() - 180
+		case k < 12: // antimeridian strip
+			lat = 160*r.Float64() - 80
+			lon = 179.5 + r.Float64()*0.5
+			if r.IntN(2) == 0 {
+				lon = -lon
+			}
+		case k < 16: // polar caps
+			lat = 88 + 2*r.Float64()
+			if r.IntN(2) == 0 {
+				lat = -lat
+			}
+			lon = 360*r.Float64() - 180
+		case k < 18 && i > 0: // tight cluster around an earlier point
+			j := r.IntN(i)
+			lat = math.Max(-90, math.Min(90, lats[j]+0.01*(r.Float64()-0.5)))
+			lon = lons[j] + 0.01*(r.Float64()-0.5)
+		case k < 19 && i > 0: // exact duplicate
+			j := r.IntN(i)
+			lat, lon = lats[j], lons[j]
+		default: // longitude in (180, 360]
+			lat = 180*r.Float64() - 90
+			lon = 180 + 180*r.Float64()
+		}
+		lats[i], lons[i] = lat, lon
+	}
+	return lats, lons
+}
+
+// bruteNearest is the reference: the minimum of Distance over all sites,
+// first index on ties.
+func bruteNearest(lats, lons []float64, lat, lon float64) (int, float64) {
+	best, bd := -1, math.Inf(1)
+	for i := range lats {
+		if d := Distance(lat, lon, lats[i], lons[i]); d < bd {
+			best, bd = i, d
+		}
+	}
+	return best, bd
+}
+
+// TestNearestVsBruteForce compares Index.Nearest with brute force (the
+// minimum of Distance over all sites) on 1500 random sites and 700 random
+// queries (fixed seed) including the antimeridian, the poles, clusters,
+// duplicates and query points equal to sites. It requires the same index or,
+// on ties, the same distance; and for maxDist below, at, and above the true
+// distance the documented behaviour.
+func TestNearestVsBruteForce(t *testing.T) {
+	slat, slon := randomPoints(1, 1500)
+	qlat, qlon := randomPoints(2, 600)
+	for i := 0; i < 100; i++ { // queries exactly at sites, some with lon shifted by 360
+		qlat = append(qlat, slat[i*7])
+		qlon = append(qlon, slon[i*7]-360*float64(i%2))
+	}
+	ix, err := NewIndex(slat, slon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ix.Len() != len(slat) {
+		t.Fatalf("Len = %d, want %d", ix.Len(), len(slat))
+	}
+	for q := range qlat {
+		wi, wd := bruteNearest(slat, slon, qlat[q], qlon[q])
+		gi, gd := ix.Nearest(qlat[q], qlon[q], 0)
+		if gi != wi && gd != wd {
+			t.Errorf("query %d (%v, %v): Nearest = (%d, %.6f), brute force (%d, %.6f)", q, qlat[q], qlon[q], gi, gd, wi, wd)
+			continue
+		}
+		if gi < 0 || gd != Distance(qlat[q], qlon[q], slat[gi], slon[gi]) {
+			t.Errorf("query %d: distance %v is not Distance to site %d", q, gd, gi)
+		}
+		for _, md := range []float64{wd * 0.999, wd, wd * 1.001, 1000, 1e5, 1e6, math.Inf(1)} {
+			mi, mdist := ix.Nearest(qlat[q], qlon[q], md)
+			if wd <= md || md <= 0 {
+				if mi != wi && mdist != wd {
+					t.Errorf("query %d maxDist %v: (%d, %v), want (%d, %v)", q, md, mi, mdist, wi, wd)
+				}
+			} else if mi != -1 || !math.IsInf(mdist, 1) {
+				t.Errorf("query %d maxDist %v (true %v): (%d, %v), want (-1, +Inf)", q, md, wd, mi, mdist)
+			}
+		}
+	}
+}
+
+// TestNearestEllipsoidBeatsChord builds cases where the chord between unit
+// normals (a sphere) and the WGS84 geodesic disagree on the nearest site: one
+// degree of latitude at the equator is 110 574 m but one degree of longitude is
+// 111 319 m, so a site 0.995 deg east is "nearer" in angle yet farther on the
+// ellipsoid than a site 1 deg north. The exact stage must pick the true one.
+func TestNearestEllipsoidBeatsChord(t *testing.T) {
+	tests := []struct {
+		name       string
+		lats, lons []float64
+		qlat, qlon float64
+		want       int
+	}{
+		{"equator_north_vs_east", []float64{0, 1}, []float64{0.995, 0}, 0, 0, 1},
+		{"equator_east_vs_north", []float64{1, 0}, []float64{0, 0.995}, 0, 0, 0},
+		{"across_antimeridian", []float64{0, -1}, []float64{-179.005, 180}, 0, 180, 1},
+		{"polar_cap_45_vs_meridian", []float64{89.9, 89.0}, []float64{0, 0}, 89.0, 180, 0},
+		{"duplicate_tie_first_index", []float64{10, 10, 10}, []float64{20, 20, 20}, 11, 21, 0},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			ix, err := NewIndex(tc.lats, tc.lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			wi, wd := bruteNearest(tc.lats, tc.lons, tc.qlat, tc.qlon)
+			if wi != tc.want {
+				t.Fatalf("test premise broken: brute force picks %d", wi)
+			}
+			gi, gd := ix.Nearest(tc.qlat, tc.qlon, 0)
+			if gi != tc.want || gd != wd {
+				t.Errorf("Nearest = (%d, %v), want (%d, %v)", gi, gd, tc.want, wd)
+			}
+		})
+	}
+}
+
+// TestNewIndexErrors checks the rejected inputs.
+func TestNewIndexErrors(t *testing.T) {
+	tests := []struct {
+		name       string
+		lats, lons []float64
+	}{
+		{"empty", nil, nil},
+		{"length_mismatch", []float64{1, 2}, []float64{1}},
+		{"lat_above_90", []float64{0, 90.5}, []float64{0, 0}},
+		{"lat_nan", []float64{math.NaN()}, []float64{0}},
+		{"lon_above_360", []float64{0}, []float64{361}},
+		{"lon_inf", []float64{0}, []float64{math.Inf(-1)}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if ix, err := NewIndex(tc.lats, tc.lons); err == nil {
+				t.Errorf("NewIndex = %v, want error", ix)
+			} else if msg := err.Error(); len(msg) < 9 || msg[:9] != "geodesy: " {
+				t.Errorf("error %q lacks package prefix", msg)
+			}
+		})
+	}
+}
+
+// TestNearestInvalidQuery: out-of-range queries give (-1, NaN).
+func TestNearestInvalidQuery(t *testing.T) {
+	ix, err := NewIndex([]float64{0}, []float64{0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, q := range [][2]float64{{91, 0}, {math.NaN(), 0}, {0, math.Inf(1)}, {0, math.NaN()}} {
+		if i, d := ix.Nearest(q[0], q[1], 0); i != -1 || !math.IsNaN(d) {
+			t.Errorf("Nearest(%v, %v) = (%d, %v), want (-1, NaN)", q[0], q[1], i, d)
+		}
+	}
+}
+
+// TestNearestConcurrent runs Nearest from four goroutines and compares with
+// serial answers.
+func TestNearestConcurrent(t *testing.T) {
+	slat, slon := randomPoints(3, 3000)
+	qlat, qlon := randomPoints(4, 2000)
+	ix, err := NewIndex(slat, slon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := make([]int, len(qlat))
+	for q := range qlat {
+		want[q], _ = ix.Nearest(qlat[q], qlon[q], 0)
+	}
+	errs := make(chan error, 4)
+	for w := range 4 {
+		go func() {
+			for q := range qlat {
+				if got, _ := ix.Nearest(qlat[q], qlon[q], float64(w)*1e5); w == 0 && got != want[q] {
+					errs <- fmt.Errorf("goroutine %d query %d: %d, serial %d", w, q, got, want[q])
+					return
+				}
+			}
+			errs <- nil
+		}()
+	}
+	for range 4 {
+		if err := <-errs; err != nil {
+			t.Error(err)
+		}
+	}
+}
+
+// TestNearestNoAlloc: queries must not allocate.
+func TestNearestNoAlloc(t *testing.T) {
+	slat, slon := randomPoints(5, 2000)
+	ix, err := NewIndex(slat, slon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a := testing.AllocsPerRun(200, func() { ix.Nearest(12.3, 45.6, 0); ix.Nearest(-80, 170, 5e4) }); a != 0 {
+		t.Errorf("Nearest allocates %v times per call pair", a)
+	}
+}
+
+// benchSites returns n sites inside a 20 x 40 degree box (an occurrence
+// range), near queries inside the box and far queries at least ~10 deg away.
+func benchSites(n int) (slat, slon, nearLat, nearLon, farLat, farLon []float64) {
+	r := rand.New(rand.NewPCG(uint64(n), 7))
+	slat, slon = make([]float64, n), make([]float64, n)
+	for i := range n {
+		slat[i], slon[i] = 30+20*r.Float64(), -10+40*r.Float64()
+	}
+	const nq = 4096
+	nearLat, nearLon = make([]float64, nq), make([]float64, nq)
+	farLat, farLon = make([]float64, nq), make([]float64, nq)
+	for i := range nq {
+		nearLat[i], nearLon[i] = 30+20*r.Float64(), -10+40*r.Float64()
+		farLat[i], farLon[i] = -60+70*r.Float64(), 60+100*r.Float64()
+	}
+	return
+}
+
+func BenchmarkNearest(b *testing.B) {
+	for _, n := range []int{10000, 100000} {
+		slat, slon, nlat, nlon, flat, flon := benchSites(n)
+		ix, err := NewIndex(slat, slon)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, c := range []struct {
+			name     string
+			lat, lon []float64
+			maxDist  float64
+		}{
+			{"near/nolimit", nlat, nlon, 0},
+			{"near/max50km", nlat, nlon, 5e4},
+			{"far/nolimit", flat, flon, 0},
+			{"far/max50km", flat, flon, 5e4},
+		} {
+			b.Run(fmt.Sprintf("sites=%d/%s", n, c.name), func(b *testing.B) {
+				b.ReportAllocs()
+				for i := 0; b.Loop(); i++ {
+					k := i & (len(c.lat) - 1)
+					ix.Nearest(c.lat[k], c.lon[k], c.maxDist)
+				}
+			})
+		}
+	}
+}
+
+func BenchmarkNewIndex100000(b *testing.B) {
+	slat, slon, _, _, _, _ := benchSites(100000)
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := NewIndex(slat, slon); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -1,0 +1,392 @@
+package extent
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"strings"
+	"sync"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent/geodesy"
+)
+
+var registerOnce sync.Once
+
+// Register makes GDAL's drivers available. It is safe to call many times.
+// GDAL's auxiliary-file machinery is switched off first, so that reading a
+// user's raster never writes a .aux.xml beside it.
+func Register() {
+	registerOnce.Do(func() {
+		os.Setenv("GDAL_PAM_ENABLED", "NO")
+		godal.RegisterAll()
+	})
+}
+
+// Errors about the model grid.
+var (
+	ErrNoCRS     = errors.New("extent: raster has no coordinate reference system; assign one (e.g. gdal_edit.py -a_srs EPSG:4326 FILE)")
+	ErrRotated   = errors.New("extent: raster geotransform is rotated or south-up; warp it to a north-up grid first (gdalwarp)")
+	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude")
+	ErrGridsDiff = errors.New("extent: model rasters are not on one grid")
+)
+
+// Grid is the model raster grid: size, north-up geotransform and CRS. Cell
+// (col,row) covers x in [gt0+col*gt1, gt0+(col+1)*gt1) and y from the row's
+// top edge gt3+row*gt5 down to the next. Cell areas are true areas on the
+// WGS84 ellipsoid in km^2.
+type Grid struct {
+	Width, Height int
+	GeoTransform  [6]float64
+	// CRS is "EPSG:n" when GDAL identifies the code, else the WKT.
+	CRS string
+	// WKT is the CRS in WKT.
+	WKT string
+	// Geographic is true for latitude-longitude grids.
+	Geographic bool
+	// EqualArea is true for projections that preserve area, whose planar
+	// cell area is the true area.
+	EqualArea bool
+	// AreaMethod describes in words how cell areas are computed.
+	AreaMethod string
+
+	// blockFactor holds, for projected grids that are not equal-area, the
+	// ratio true/planar area of each factorStep x factorStep block of cells.
+	blockFactor []float64
+	factorStep  int
+	factorW     int
+
+	mu    sync.Mutex
+	toLL  *godal.Transform // grid CRS -> WGS84 lon/lat
+	frLL  *godal.Transform // WGS84 lon/lat -> grid CRS
+	srs   *godal.SpatialRef
+	wgs84 *godal.SpatialRef
+}
+
+// equalAreaMethods are WKT1 projection names of area-preserving projections.
+var equalAreaMethods = []string{
+	"albers_conic_equal_area", "lambert_azimuthal_equal_area", "mollweide",
+	"sinusoidal", "cylindrical_equal_area", "eckert_iv", "eckert_vi",
+	"goode_homolosine", "equal_earth", "quartic_authalic",
+}
+
+// OpenGrid reads the grid of the raster at path (first band).
+func OpenGrid(path string) (*Grid, error) {
+	Register()
+	ds, err := godal.Open(path, godal.RasterOnly())
+	if err != nil {
+		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read: %w", path, err)
+	}
+	defer ds.Close()
+	if len(ds.Bands()) == 0 {
+		return nil, fmt.Errorf("extent: %s has no raster band", path)
+	}
+	gt, err := ds.GeoTransform()
+	if err != nil {
+		return nil, fmt.Errorf("extent: %s has no geotransform: %w", path, err)
+	}
+	sr := ds.SpatialRef()
+	if sr == nil {
+		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+	}
+	wkt, err := sr.WKT()
+	if err != nil || wkt == "" {
+		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+	}
+	st := ds.Structure()
+	g, err := NewGrid(st.SizeX, st.SizeY, gt, wkt)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return g, nil
+}
+
+// NewGrid makes a grid from its size, geotransform and CRS (WKT or any
+// string GDAL's SetFromUserInput reads, such as "EPSG:4326").
+func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
+	Register()
+	if width <= 0 || height <= 0 {
+		return nil, fmt.Errorf("extent: grid size %dx%d is empty", width, height)
+	}
+	if gt[2] != 0 || gt[4] != 0 || gt[1] <= 0 || gt[5] >= 0 {
+		return nil, ErrRotated
+	}
+	sr, err := godal.NewSpatialRef(crs)
+	if err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+	}
+	wkt, err := sr.WKT()
+	if err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+	}
+	wgs, err := godal.NewSpatialRefFromEPSG(4326)
+	if err != nil {
+		return nil, fmt.Errorf("extent: PROJ cannot make EPSG:4326 (is proj-data installed?): %w", err)
+	}
+	g := &Grid{Width: width, Height: height, GeoTransform: gt, WKT: wkt, srs: sr, wgs84: wgs}
+	g.Geographic = sr.Geographic()
+	g.CRS = wkt
+	if code := sr.AuthorityCode(""); code != "" && sr.AuthorityName("") == "EPSG" {
+		g.CRS = "EPSG:" + code
+	}
+	if g.Geographic {
+		if float64(width)*gt[1] > 360+1e-9 {
+			return nil, ErrWideGrid
+		}
+		if gt[3] > 90+1e-9 || gt[3]+float64(height)*gt[5] < -90-1e-9 {
+			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f)", gt[3], gt[3]+float64(height)*gt[5])
+		}
+		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
+		return g, nil
+	}
+	if g.toLL, err = godal.NewTransform(sr, wgs); err != nil {
+		return nil, fmt.Errorf("extent: cannot transform the raster CRS to WGS84: %w", err)
+	}
+	if g.frLL, err = godal.NewTransform(wgs, sr); err != nil {
+		return nil, fmt.Errorf("extent: cannot transform WGS84 to the raster CRS: %w", err)
+	}
+	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
+		lname := strings.ToLower(name)
+		for _, m := range equalAreaMethods {
+			if strings.Contains(lname, m) {
+				g.EqualArea = true
+			}
+		}
+	}
+	if g.EqualArea {
+		g.AreaMethod = "planar cell area of an equal-area projection"
+		return g, nil
+	}
+	if err := g.computeFactors(); err != nil {
+		return nil, err
+	}
+	return g, nil
+}
+
+// Close releases the grid's coordinate transformations.
+func (g *Grid) Close() {
+	if g.toLL != nil {
+		g.toLL.Close()
+	}
+	if g.frLL != nil {
+		g.frLL.Close()
+	}
+}
+
+// SpatialRef returns the grid's CRS. The grid owns it.
+func (g *Grid) SpatialRef() *godal.SpatialRef { return g.srs }
+
+// Cells returns Width*Height.
+func (g *Grid) Cells() int { return g.Width * g.Height }
+
+// Centre returns the grid-CRS coordinates of the centre of cell (col,row).
+func (g *Grid) Centre(col, row int) (x, y float64) {
+	gt := g.GeoTransform
+	return gt[0] + (float64(col)+0.5)*gt[1], gt[3] + (float64(row)+0.5)*gt[5]
+}
+
+// CellOf returns the cell holding grid-CRS point (x,y). A point on a cell's
+// west or north edge belongs to that cell. ok is false outside the grid.
+func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
+	gt := g.GeoTransform
+	fc := (x - gt[0]) / gt[1]
+	fr := (y - gt[3]) / gt[5]
+	if math.IsNaN(fc) || math.IsNaN(fr) || fc < 0 || fr < 0 || fc >= float64(g.Width) || fr >= float64(g.Height) {
+		return 0, 0, false
+	}
+	return int(fc), int(fr), true
+}
+
+// Bounds returns west, south, east, north in grid CRS.
+func (g *Grid) Bounds() [4]float64 {
+	gt := g.GeoTransform
+	return [4]float64{gt[0], gt[3] + float64(g.Height)*gt[5], gt[0] + float64(g.Width)*gt[1], gt[3]}
+}
+
+// CellSizeKm returns an approximate cell width in km at the grid's centre,
+// for messages and thresholds of "a few cells".
+func (g *Grid) CellSizeKm() float64 {
+	c, r := g.Width/2, g.Height/2
+	lons := make([]float64, 2)
+	lats := make([]float64, 2)
+	x0, y0 := g.Centre(c, r)
+	x1, _ := g.Centre(c+1, r)
+	g.ToLonLat([]float64{x0, x1}, []float64{y0, y0}, lons, lats)
+	return geodesy.Distance(lats[0], lons[0], lats[1], lons[1]) / 1000
+}
+
+// ToLonLat converts grid-CRS coordinates to WGS84 longitude and latitude.
+// Points that cannot be converted get NaN.
+func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
+	copy(lons, xs)
+	copy(lats, ys)
+	if g.Geographic {
+		return
+	}
+	g.transform(g.toLL, lons, lats)
+}
+
+// FromLonLat converts WGS84 longitude and latitude to grid-CRS coordinates.
+// Points that cannot be converted get NaN.
+func (g *Grid) FromLonLat(lons, lats, xs, ys []float64) {
+	copy(xs, lons)
+	copy(ys, lats)
+	if g.Geographic {
+		for i := range xs {
+			xs[i] = wrapInto(xs[i], g.GeoTransform[0])
+		}
+		return
+	}
+	g.transform(g.frLL, xs, ys)
+}
+
+// wrapInto shifts longitude lon by whole turns so that it lies in
+// [west, west+360).
+func wrapInto(lon, west float64) float64 {
+	for lon < west {
+		lon += 360
+	}
+	for lon >= west+360 {
+		lon -= 360
+	}
+	return lon
+}
+
+func (g *Grid) transform(t *godal.Transform, xs, ys []float64) {
+	ok := make([]bool, len(xs))
+	g.mu.Lock()
+	err := t.TransformEx(xs, ys, nil, ok)
+	g.mu.Unlock()
+	for i := range xs {
+		if err != nil && !ok[i] || !ok[i] {
+			xs[i], ys[i] = math.NaN(), math.NaN()
+		}
+	}
+}
+
+// RowLonLat fills lons and lats (length Width) with the WGS84 coordinates
+// of the centres of the cells of row.
+func (g *Grid) RowLonLat(row int, lons, lats []float64) {
+	xs := make([]float64, g.Width)
+	ys := make([]float64, g.Width)
+	for c := 0; c < g.Width; c++ {
+		xs[c], ys[c] = g.Centre(c, row)
+	}
+	g.ToLonLat(xs, ys, lons, lats)
+}
+
+// RowAreas fills dst (length Width) with the true area in km^2 of each
+// cell of row and returns it. It is safe for concurrent use.
+//
+// For latitude-longitude grids this is the exact area on the WGS84
+// ellipsoid of the quadrangle between the cell's bounding parallels and
+// meridians (geodesy.CellArea). For equal-area projections it is the planar
+// cell area. For other projections it is the planar area times the ratio of
+// true to planar area of the block of cells holding the cell, where the
+// true area of a block comes from the ellipsoidal area of its outline
+// (densified along the block edges) after transforming to WGS84.
+func (g *Grid) RowAreas(row int, dst []float64) []float64 {
+	gt := g.GeoTransform
+	if len(dst) < g.Width {
+		dst = make([]float64, g.Width)
+	}
+	dst = dst[:g.Width]
+	if g.Geographic {
+		top := gt[3] + float64(row)*gt[5]
+		bot := top + gt[5]
+		a := geodesy.CellArea(math.Max(bot, -90), math.Min(top, 90), gt[1]) / 1e6
+		for i := range dst {
+			dst[i] = a
+		}
+		return dst
+	}
+	planar := math.Abs(gt[1]*gt[5]) / 1e6
+	if g.EqualArea {
+		for i := range dst {
+			dst[i] = planar
+		}
+		return dst
+	}
+	br := row / g.factorStep
+	for c := range dst {
+		dst[c] = planar * g.blockFactor[br*g.factorW+c/g.factorStep]
+	}
+	return dst
+}
+
+// computeFactors fills blockFactor for projected grids that are not
+// equal-area. Blocks are small enough that at most about a million blocks
+// cover the grid.
+func (g *Grid) computeFactors() error {
+	step := 1
+	for (g.Width/step+1)*(g.Height/step+1) > 1<<20 {
+		step *= 2
+	}
+	g.factorStep = step
+	g.factorW = (g.Width + step - 1) / step
+	fh := (g.Height + step - 1) / step
+	g.blockFactor = make([]float64, g.factorW*fh)
+	gt := g.GeoTransform
+	const sub = 4 // points per block edge
+	xs := make([]float64, 4*sub)
+	ys := make([]float64, 4*sub)
+	lons := make([]float64, 4*sub)
+	lats := make([]float64, 4*sub)
+	for br := 0; br < fh; br++ {
+		for bc := 0; bc < g.factorW; bc++ {
+			c0, r0 := bc*step, br*step
+			c1, r1 := min(c0+step, g.Width), min(r0+step, g.Height)
+			x0, x1 := gt[0]+float64(c0)*gt[1], gt[0]+float64(c1)*gt[1]
+			y0, y1 := gt[3]+float64(r0)*gt[5], gt[3]+float64(r1)*gt[5]
+			// Outline counter-clockwise in (x,y): bottom edge west->east, east
+			// edge south->north, top edge east->west, west edge north->south.
+			for k := 0; k < sub; k++ {
+				f := float64(k) / sub
+				xs[k], ys[k] = x0+f*(x1-x0), y1
+				xs[sub+k], ys[sub+k] = x1, y1+f*(y0-y1)
+				xs[2*sub+k], ys[2*sub+k] = x1-f*(x1-x0), y0
+				xs[3*sub+k], ys[3*sub+k] = x0, y0-f*(y0-y1)
+			}
+			g.ToLonLat(xs, ys, lons, lats)
+			for i := range lons {
+				if math.IsNaN(lons[i]) {
+					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84; the raster CRS covers more than PROJ can invert", c0, r0)
+				}
+			}
+			area, _ := geodesy.PolygonArea(lats, lons)
+			planar := (x1 - x0) * (y0 - y1)
+			g.blockFactor[br*g.factorW+bc] = math.Abs(area) / planar
+		}
+	}
+	g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)
+	return nil
+}
+
+// SameAs reports how g and o differ, or "" when they are one grid.
+func (g *Grid) SameAs(o *Grid) string {
+	var diffs []string
+	if g.Width != o.Width || g.Height != o.Height {
+		diffs = append(diffs, fmt.Sprintf("size %dx%d vs %dx%d", g.Width, g.Height, o.Width, o.Height))
+	}
+	for i, v := range g.GeoTransform {
+		w := o.GeoTransform[i]
+		tol := 1e-9 * math.Max(math.Abs(g.GeoTransform[1]), math.Abs(g.GeoTransform[5]))
+		if math.Abs(v-w) > tol {
+			diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v", g.GeoTransform, o.GeoTransform))
+			break
+		}
+	}
+	if !g.srs.IsSame(o.srs) {
+		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))
+	}
+	return strings.Join(diffs, "; ")
+}
+
+func shortCRS(s string) string {
+	if len(s) > 60 {
+		return s[:60] + "..."
+	}
+	return s
+}

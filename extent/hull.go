@@ -1,0 +1,248 @@
+package extent
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"areasweep/extent/geodesy"
+)
+
+// gnomonic is the gnomonic (central) projection of the unit sphere about a
+// centre direction c: a point with unit vector p maps to
+//
+//	(p.e1 / p.c, p.e2 / p.c)
+//
+// for p.c > 0. It maps great circles to straight lines, so the planar
+// convex hull of projected points is the projection of their spherical
+// convex hull: a hull that stays sane across a continent, unlike a hull of
+// raw degrees (Snyder 1987, Map Projections: A Working Manual, USGS PP 1395,
+// p. 164).
+type gnomonic struct{ c, e1, e2 [3]float64 }
+
+func unitVector(lon, lat float64) [3]float64 {
+	lo, la := lon*math.Pi/180, lat*math.Pi/180
+	return [3]float64{math.Cos(la) * math.Cos(lo), math.Cos(la) * math.Sin(lo), math.Sin(la)}
+}
+
+func dot(a, b [3]float64) float64 { return a[0]*b[0] + a[1]*b[1] + a[2]*b[2] }
+
+func cross(a, b [3]float64) [3]float64 {
+	return [3]float64{a[1]*b[2] - a[2]*b[1], a[2]*b[0] - a[0]*b[2], a[0]*b[1] - a[1]*b[0]}
+}
+
+func normalize(a [3]float64) [3]float64 {
+	n := math.Sqrt(dot(a, a))
+	return [3]float64{a[0] / n, a[1] / n, a[2] / n}
+}
+
+func newGnomonic(c [3]float64) gnomonic {
+	c = normalize(c)
+	ref := [3]float64{0, 0, 1}
+	if math.Abs(c[2]) > 0.9 {
+		ref = [3]float64{1, 0, 0}
+	}
+	e1 := normalize(cross(ref, c))
+	e2 := cross(c, e1)
+	return gnomonic{c, e1, e2}
+}
+
+// project returns the plane coordinates of p, ok false on the far hemisphere.
+func (g gnomonic) project(p [3]float64) (x, y float64, ok bool) {
+	d := dot(p, g.c)
+	if d <= 1e-12 {
+		return 0, 0, false
+	}
+	return dot(p, g.e1) / d, dot(p, g.e2) / d, true
+}
+
+// inverse returns longitude and latitude of plane point (x,y).
+func (g gnomonic) inverse(x, y float64) (lon, lat float64) {
+	v := normalize([3]float64{
+		g.c[0] + x*g.e1[0] + y*g.e2[0],
+		g.c[1] + x*g.e1[1] + y*g.e2[1],
+		g.c[2] + x*g.e1[2] + y*g.e2[2],
+	})
+	return math.Atan2(v[1], v[0]) * 180 / math.Pi, math.Asin(v[2]) * 180 / math.Pi
+}
+
+// maxHullAngle is the largest angle (degrees) between the points' mean
+// direction and any point for which the hull is built; beyond it the
+// gnomonic projection stretches without bound.
+const maxHullAngle = 80.0
+
+// planarHull returns the convex hull of pts counter-clockwise, without
+// repeating the first point (Andrew's monotone chain, Andrew 1979,
+// Information Processing Letters 9:216-219).
+func planarHull(pts [][2]float64) [][2]float64 {
+	p := append([][2]float64(nil), pts...)
+	sort.Slice(p, func(i, j int) bool {
+		if p[i][0] != p[j][0] {
+			return p[i][0] < p[j][0]
+		}
+		return p[i][1] < p[j][1]
+	})
+	if len(p) < 3 {
+		return p
+	}
+	turn := func(o, a, b [2]float64) float64 {
+		return (a[0]-o[0])*(b[1]-o[1]) - (a[1]-o[1])*(b[0]-o[0])
+	}
+	h := make([][2]float64, 0, 2*len(p))
+	for _, q := range p {
+		for len(h) >= 2 && turn(h[len(h)-2], h[len(h)-1], q) <= 0 {
+			h = h[:len(h)-1]
+		}
+		h = append(h, q)
+	}
+	lower := len(h) + 1
+	for i := len(p) - 2; i >= 0; i-- {
+		q := p[i]
+		for len(h) >= lower && turn(h[len(h)-2], h[len(h)-1], q) <= 0 {
+			h = h[:len(h)-1]
+		}
+		h = append(h, q)
+	}
+	return h[:len(h)-1]
+}
+
+// insideConvex reports whether (x,y) is inside or on the counter-clockwise
+// convex polygon h.
+func insideConvex(h [][2]float64, x, y float64) bool {
+	if len(h) < 3 {
+		return false
+	}
+	for i := range h {
+		a, b := h[i], h[(i+1)%len(h)]
+		if (b[0]-a[0])*(y-a[1])-(b[1]-a[1])*(x-a[0]) < 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// sphericalHull is the convex hull of points on the sphere.
+type sphericalHull struct {
+	proj gnomonic
+	poly [][2]float64 // in the gnomonic plane, counter-clockwise
+}
+
+func newSphericalHull(pts []LonLat) (*sphericalHull, error) {
+	if len(pts) < 3 {
+		return nil, fmt.Errorf("extent: a convex hull needs 3 or more training points, have %d", len(pts))
+	}
+	var c [3]float64
+	vs := make([][3]float64, len(pts))
+	for i, p := range pts {
+		vs[i] = unitVector(p.Lon, p.Lat)
+		for k := range c {
+			c[k] += vs[i][k]
+		}
+	}
+	if math.Sqrt(dot(c, c)) < 1e-9*float64(len(pts)) {
+		return nil, fmt.Errorf("extent: training points are spread around the globe; a convex hull is not defined, use point buffers")
+	}
+	g := newGnomonic(c)
+	plane := make([][2]float64, len(vs))
+	for i, v := range vs {
+		if dot(v, g.c) < math.Cos(maxHullAngle*math.Pi/180) {
+			return nil, fmt.Errorf("extent: training point (lon %.4f, lat %.4f) is more than %g degrees from the points' centre; a convex hull over that span is refused, use point buffers", pts[i].Lon, pts[i].Lat, maxHullAngle)
+		}
+		x, y, _ := g.project(v)
+		plane[i] = [2]float64{x, y}
+	}
+	h := planarHull(plane)
+	if len(h) < 3 {
+		return nil, fmt.Errorf("extent: training points are collinear; the convex hull has no area")
+	}
+	return &sphericalHull{proj: g, poly: h}, nil
+}
+
+func (s *sphericalHull) contains(lon, lat float64) bool {
+	x, y, ok := s.proj.project(unitVector(lon, lat))
+	return ok && insideConvex(s.poly, x, y)
+}
+
+// boundary returns the hull's vertices as longitude/latitude, closed.
+func (s *sphericalHull) boundary() []LonLat {
+	out := make([]LonLat, 0, len(s.poly)+1)
+	for i := 0; i <= len(s.poly); i++ {
+		p := s.poly[i%len(s.poly)]
+		lon, lat := s.proj.inverse(p[0], p[1])
+		out = append(out, LonLat{lon, lat})
+	}
+	return out
+}
+
+// hull adds the training points' convex hull and its geodesic buffers.
+// Hull edges are great-circle arcs; the buffer distance is measured on the
+// WGS84 ellipsoid to the edges densified as ellipsoidal geodesics at a
+// quarter cell (the two edge curves differ by far less than a cell at
+// continental scale).
+func (b *builder) hull(train []LonLat, ds []float64) error {
+	h, err := newSphericalHull(train)
+	if err != nil {
+		b.f.Warnings = append(b.f.Warnings, err.Error()+"; no hull extents")
+		return nil
+	}
+	ds = sortedUnique(ds)
+	var bits []uint64
+	var dm []float64
+	maxD := 0.0
+	for _, d := range ds {
+		if d < 0 {
+			return fmt.Errorf("extent: hull buffer distance %g km must be 0 (the hull) or positive", d)
+		}
+		id, params := "hull", "convex hull of training points"
+		if d > 0 {
+			id, params = "hull_"+kmID(d), fmt.Sprintf("convex hull of training points; d_km=%g", d)
+		}
+		bit, err := b.add(Member{ID: id, Kind: KindHull, Params: params, DistanceKm: d, Chain: chainHull})
+		if err != nil {
+			return err
+		}
+		b.f.Chains[chainHull] = append(b.f.Chains[chainHull], memberIndex(bit))
+		bits = append(bits, bit)
+		dm = append(dm, d*1000)
+		maxD = math.Max(maxD, d*1000)
+	}
+	ring := h.boundary()
+	step := b.g.CellSizeKm() * 1000 / 4
+	var lats, lons []float64
+	for i := 1; i < len(ring); i++ {
+		la, lo := geodesy.Densify(ring[i-1].Lat, ring[i-1].Lon, ring[i].Lat, ring[i].Lon, step)
+		lats = append(lats, la...)
+		lons = append(lons, lo...)
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: hull boundary: %w", err)
+	}
+	g := b.g
+	if maxD > 0 {
+		reach := newReach(lats, lons, maxD)
+		b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+			for k, d := range dm {
+				if d > 0 && dist <= d {
+					b.f.Mask[i] |= bits[k]
+				}
+			}
+		})
+	}
+	// Cells inside the hull (all buffers contain the hull).
+	all := uint64(0)
+	for _, bt := range bits {
+		all |= bt
+	}
+	lonsR := make([]float64, g.Width)
+	latsR := make([]float64, g.Width)
+	for row := 0; row < g.Height; row++ {
+		g.RowLonLat(row, lonsR, latsR)
+		for c := 0; c < g.Width; c++ {
+			if !math.IsNaN(latsR[c]) && h.contains(lonsR[c], latsR[c]) {
+				b.f.Mask[row*g.Width+c] |= all
+			}
+		}
+	}
+	return nil
+}

@@ -1,0 +1,332 @@
+package extent
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/airbusgeo/godal"
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/encoding/wkb"
+)
+
+// ErrNoOverlap is returned when a polygon layer covers no cell of the grid.
+var ErrNoOverlap = errors.New("extent: region does not overlap the raster")
+
+// Shape is a polygon area read from a vector layer and put in the grid's
+// CRS (Grid) and in WGS84 longitude/latitude (LonLat), both as orb values.
+type Shape struct {
+	Grid   orb.MultiPolygon
+	LonLat orb.MultiPolygon
+}
+
+// Unit is one feature group of a polygon layer sharing an id value.
+type Unit struct {
+	ID    string
+	Shape Shape
+	geom  *godal.Geometry // grid CRS, for GEOS predicates
+}
+
+// ReadShape reads every polygon feature of the first layer of the vector
+// file at path, repairs invalid ones (with a warning), unions them and puts
+// the result in the grid's CRS.
+func ReadShape(path string, g *Grid) (Shape, []string, error) {
+	units, warns, err := readUnits(path, "", g)
+	if err != nil {
+		return Shape{}, warns, err
+	}
+	var all *godal.Geometry
+	for _, u := range units {
+		if all == nil {
+			all = u.geom
+			continue
+		}
+		un, err := all.Union(u.geom)
+		if err != nil {
+			return Shape{}, warns, fmt.Errorf("extent: %s: union of features failed: %w", path, err)
+		}
+		all = un
+	}
+	s, err := shapeOf(all, g)
+	if err != nil {
+		return Shape{}, warns, fmt.Errorf("extent: %s: %w", path, err)
+	}
+	return s, warns, nil
+}
+
+// ReadUnits reads the polygon features of the first layer of path grouped
+// by the value of field, each group unioned, in the order ids first appear.
+func ReadUnits(path, field string, g *Grid) ([]Unit, []string, error) {
+	return readUnits(path, field, g)
+}
+
+func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
+	Register()
+	var warns []string
+	ds, err := godal.Open(path, godal.VectorOnly())
+	if err != nil {
+		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read: %w", path, err)
+	}
+	defer ds.Close()
+	layers := ds.Layers()
+	if len(layers) == 0 {
+		return nil, nil, fmt.Errorf("extent: %s has no layer", path)
+	}
+	layer := layers[0]
+	if len(layers) > 1 {
+		warns = append(warns, fmt.Sprintf("%s has %d layers; using the first, %q", path, len(layers), layer.Name()))
+	}
+	lsr := layer.SpatialRef()
+	if lsr == nil {
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+	}
+	defer lsr.Close()
+	byID := map[string]*godal.Geometry{}
+	var order []string
+	layer.ResetReading()
+	n := 0
+	for {
+		f := layer.NextFeature()
+		if f == nil {
+			break
+		}
+		n++
+		fid := n
+		geom := f.Geometry()
+		id := ""
+		if field != "" {
+			fields := f.Fields()
+			v, ok := fields[field]
+			if !ok {
+				names := make([]string, 0, len(fields))
+				for k := range fields {
+					names = append(names, k)
+				}
+				sort.Strings(names)
+				f.Close()
+				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
+			}
+			id = v.String()
+		}
+		if geom == nil || geom.Empty() {
+			warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, fid))
+			f.Close()
+			continue
+		}
+		t := geom.Type()
+		if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D {
+			f.Close()
+			return nil, warns, fmt.Errorf("extent: %s feature %d is a %s, not a polygon", path, fid, geom.Name())
+		}
+		// Own copy through WKB, so the feature can be closed.
+		b, err := geom.WKB()
+		f.Close()
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+		}
+		own, err := godal.NewGeometryFromWKB(b, lsr)
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+		}
+		if !own.Valid() {
+			fixed, err := own.Buffer(0, 8)
+			if err != nil || fixed.Empty() {
+				return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry (self-intersection?) that could not be repaired; fix it in a GIS", path, fid)
+			}
+			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with a zero-width buffer", path, fid))
+			own = fixed
+		}
+		if prev, ok := byID[id]; ok {
+			un, err := prev.Union(own)
+			if err != nil {
+				return nil, warns, fmt.Errorf("extent: %s feature %d: union failed: %w", path, fid, err)
+			}
+			byID[id] = un
+		} else {
+			byID[id] = own
+			order = append(order, id)
+		}
+	}
+	if len(order) == 0 {
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no polygon features", path, layer.Name())
+	}
+	units := make([]Unit, 0, len(order))
+	for _, id := range order {
+		geom := byID[id]
+		if err := geom.Reproject(g.srs); err != nil {
+			return nil, warns, fmt.Errorf("extent: %s: cannot reproject to the raster CRS: %w", path, err)
+		}
+		s, err := shapeOf(geom, g)
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+		}
+		units = append(units, Unit{ID: id, Shape: s, geom: geom})
+	}
+	return units, warns, nil
+}
+
+// shapeOf converts a GDAL geometry in the grid CRS to a Shape.
+func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
+	b, err := geom.WKB()
+	if err != nil {
+		return Shape{}, err
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return Shape{}, fmt.Errorf("geometry: %w", err)
+	}
+	var mp orb.MultiPolygon
+	switch v := og.(type) {
+	case orb.Polygon:
+		mp = orb.MultiPolygon{v}
+	case orb.MultiPolygon:
+		mp = v
+	case orb.Collection:
+		for _, x := range v {
+			switch p := x.(type) {
+			case orb.Polygon:
+				mp = append(mp, p)
+			case orb.MultiPolygon:
+				mp = append(mp, p...)
+			}
+		}
+	default:
+		return Shape{}, fmt.Errorf("geometry is a %s, not a polygon", og.GeoJSONType())
+	}
+	ll := make(orb.MultiPolygon, len(mp))
+	for i, p := range mp {
+		ll[i] = make(orb.Polygon, len(p))
+		for j, r := range p {
+			xs := make([]float64, len(r))
+			ys := make([]float64, len(r))
+			for k, pt := range r {
+				xs[k], ys[k] = pt[0], pt[1]
+			}
+			lons := make([]float64, len(r))
+			lats := make([]float64, len(r))
+			g.ToLonLat(xs, ys, lons, lats)
+			rr := make(orb.Ring, len(r))
+			for k := range r {
+				if math.IsNaN(lons[k]) {
+					return Shape{}, fmt.Errorf("a vertex (%g, %g) cannot be transformed to WGS84", xs[k], ys[k])
+				}
+				rr[k] = orb.Point{lons[k], lats[k]}
+			}
+			if err := checkRingLon(rr); err != nil {
+				return Shape{}, err
+			}
+			ll[i][j] = rr
+		}
+	}
+	return Shape{Grid: mp, LonLat: ll}, nil
+}
+
+// checkRingLon refuses rings with an edge jumping more than 180 degrees of
+// longitude: such a ring crosses the antimeridian in a way the grid cannot
+// represent, and filling it would cover the wrong side of the Earth.
+func checkRingLon(r orb.Ring) error {
+	for i := 1; i < len(r); i++ {
+		if math.Abs(r[i][0]-r[i-1][0]) > 180 {
+			return fmt.Errorf("a polygon edge crosses the antimeridian (from lon %.4f to %.4f); split the polygon at 180 degrees", r[i-1][0], r[i][0])
+		}
+	}
+	return nil
+}
+
+// edge is a polygon edge in fractional pixel coordinates (col, row).
+type edge struct{ x0, y0, x1, y1 float64 }
+
+// pixelEdges converts a grid-CRS multipolygon to pixel-space edges.
+func pixelEdges(g *Grid, mp orb.MultiPolygon) []edge {
+	gt := g.GeoTransform
+	var es []edge
+	for _, p := range mp {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				a, b := r[i-1], r[i]
+				e := edge{(a[0] - gt[0]) / gt[1], (a[1] - gt[3]) / gt[5], (b[0] - gt[0]) / gt[1], (b[1] - gt[3]) / gt[5]}
+				if e.y0 != e.y1 {
+					es = append(es, e)
+				}
+			}
+		}
+	}
+	return es
+}
+
+// Fill calls fn(row, c0, c1) for each run of cells [c0,c1) of row whose
+// centres lie inside mp (grid CRS), by the even-odd rule over all rings.
+// A centre exactly on an edge is inside when the edge is its west
+// boundary, outside when it is its east boundary (half-open rule), so
+// adjacent polygons never share a cell.
+func Fill(g *Grid, mp orb.MultiPolygon, fn func(row, c0, c1 int)) {
+	es := pixelEdges(g, mp)
+	sort.Slice(es, func(i, j int) bool { return math.Min(es[i].y0, es[i].y1) < math.Min(es[j].y0, es[j].y1) })
+	var active []edge
+	next := 0
+	xs := make([]float64, 0, 64)
+	for row := 0; row < g.Height; row++ {
+		yc := float64(row) + 0.5
+		for next < len(es) && math.Min(es[next].y0, es[next].y1) <= yc {
+			active = append(active, es[next])
+			next++
+		}
+		xs = xs[:0]
+		keep := active[:0]
+		for _, e := range active {
+			lo, hi := math.Min(e.y0, e.y1), math.Max(e.y0, e.y1)
+			if hi <= yc {
+				continue // finished
+			}
+			keep = append(keep, e)
+			if yc >= lo && yc < hi {
+				xs = append(xs, e.x0+(yc-e.y0)*(e.x1-e.x0)/(e.y1-e.y0))
+			}
+		}
+		active = keep
+		if len(xs) < 2 {
+			continue
+		}
+		sort.Float64s(xs)
+		for i := 0; i+1 < len(xs); i += 2 {
+			c0 := int(math.Ceil(xs[i] - 0.5))
+			c1 := int(math.Ceil(xs[i+1] - 0.5))
+			c0 = max(c0, 0)
+			c1 = min(c1, g.Width)
+			if c1 > c0 {
+				fn(row, c0, c1)
+			}
+		}
+	}
+}
+
+// Contains reports whether grid-CRS point (x,y) is inside mp by the same
+// even-odd, half-open rule that Fill uses for cell centres.
+func Contains(g *Grid, mp orb.MultiPolygon, x, y float64) bool {
+	gt := g.GeoTransform
+	px := (x - gt[0]) / gt[1]
+	py := (y - gt[3]) / gt[5]
+	in := false
+	for _, p := range mp {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				a, b := r[i-1], r[i]
+				y0, y1 := (a[1]-gt[3])/gt[5], (b[1]-gt[3])/gt[5]
+				if y0 == y1 {
+					continue
+				}
+				lo, hi := math.Min(y0, y1), math.Max(y0, y1)
+				if py < lo || py >= hi {
+					continue
+				}
+				x0, x1 := (a[0]-gt[0])/gt[1], (b[0]-gt[0])/gt[1]
+				if x0+(py-y0)*(x1-x0)/(y1-y0) <= px {
+					in = !in
+				}
+			}
+		}
+	}
+	return in
+}

@@ -1,0 +1,284 @@
+package metrics
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// sum is the content of one bin: total integer area weight and cell count.
+// Area and count sit side by side so that one update touches one cache line.
+type sum struct {
+	area int64
+	n    int64
+}
+
+// Accumulator gathers the background of one model on one extent: per exact
+// bin and per fine-histogram bin the int64 area sum and int64 cell count,
+// the exact minimum and maximum value, the number of cells, the total area
+// and the number of skipped (non-finite or negative-weight) cells.
+//
+// All sums are integers, so Merge is exact and the result does not depend on
+// the order in which cells or partial accumulators are combined. The caller
+// chooses the area unit (for example square metres rounded per cell) and
+// must keep the total area of one accumulator below 2^63.
+//
+// An Accumulator is not safe for concurrent use; give each goroutine its own
+// and Merge them.
+type Accumulator struct {
+	layout   *Layout
+	bins     []sum
+	hist     []sum
+	min, max float64 // +Inf / -Inf while empty
+	cells    int64
+	area     int64
+	skipped  int64
+	// bounded is true when min and max are only bounds (see Sub).
+	bounded bool
+}
+
+// NewAccumulator returns an empty accumulator on layout l.
+func (l *Layout) NewAccumulator() *Accumulator {
+	return &Accumulator{
+		layout: l,
+		bins:   make([]sum, l.Bins()),
+		hist:   make([]sum, l.hBins),
+		min:    math.Inf(1),
+		max:    math.Inf(-1),
+	}
+}
+
+// Layout returns the layout the accumulator was made on.
+func (a *Accumulator) Layout() *Layout { return a.layout }
+
+// Add adds one background cell of value v and area weight w >= 0. A cell
+// with a non-finite value or a negative weight is not added; it is counted
+// by Skipped.
+func (a *Accumulator) Add(v float64, w int64) {
+	if math.IsNaN(v) || math.IsInf(v, 0) || w < 0 {
+		a.skipped++
+		return
+	}
+	bin, hist := a.layout.Locate(v)
+	a.AddLocated(bin, hist, v, w)
+}
+
+// AddLocated adds one cell whose bins were found by Locate on the same
+// layout. It does no checks: v must be finite and w >= 0. It is the hot path
+// of the raster pass (Locate once per cell, then AddLocated into every extent
+// that holds the cell) and is small enough to be inlined.
+func (a *Accumulator) AddLocated(bin, hist int, v float64, w int64) {
+	b := &a.bins[bin]
+	b.area += w
+	b.n++
+	h := &a.hist[hist]
+	h.area += w
+	h.n++
+	if v < a.min {
+		a.min = v
+	}
+	if v > a.max {
+		a.max = v
+	}
+	a.cells++
+	a.area += w
+}
+
+// Reset empties the accumulator, keeping its layout and memory.
+func (a *Accumulator) Reset() {
+	clear(a.bins)
+	clear(a.hist)
+	a.min, a.max = math.Inf(1), math.Inf(-1)
+	a.cells, a.area, a.skipped = 0, 0, 0
+	a.bounded = false
+}
+
+// Clone returns an independent copy of a.
+func (a *Accumulator) Clone() *Accumulator {
+	c := *a
+	c.bins = append([]sum(nil), a.bins...)
+	c.hist = append([]sum(nil), a.hist...)
+	return &c
+}
+
+// Merge adds b into a. Both must be made on the same *Layout. The result is
+// exact and independent of merge order.
+func (a *Accumulator) Merge(b *Accumulator) error {
+	if b == nil {
+		return errors.New("metrics: Merge: nil accumulator")
+	}
+	if a.layout != b.layout {
+		return errors.New("metrics: Merge: accumulators were made on different layouts")
+	}
+	for i := range a.bins {
+		a.bins[i].area += b.bins[i].area
+		a.bins[i].n += b.bins[i].n
+	}
+	for i := range a.hist {
+		a.hist[i].area += b.hist[i].area
+		a.hist[i].n += b.hist[i].n
+	}
+	if b.cells > 0 {
+		a.bounded = a.bounded || b.bounded
+	}
+	a.min = math.Min(a.min, b.min)
+	a.max = math.Max(a.max, b.max)
+	a.cells += b.cells
+	a.area += b.area
+	a.skipped += b.skipped
+	return nil
+}
+
+// Sub returns a minus b, where b holds a subset of a's cells (b's extent is
+// nested inside a's): the "ring" between two nested extents. It fails when
+// the layouts differ or when any bin of b exceeds a's.
+//
+// Bins, histogram, cells, area and skipped count of the ring are exact. The
+// ring's minimum and maximum cannot be recovered exactly in general; Sub
+// sets them to the tightest bounds the bins allow (Min <= true minimum,
+// Max >= true maximum), exact when the ring's lowest (highest) non-empty
+// exact bin is an equality bin. RangeExact reports whether both are exact.
+func (a *Accumulator) Sub(b *Accumulator) (*Accumulator, error) {
+	if b == nil {
+		return nil, errors.New("metrics: Sub: nil accumulator")
+	}
+	if a.layout != b.layout {
+		return nil, errors.New("metrics: Sub: accumulators were made on different layouts")
+	}
+	r := a.layout.NewAccumulator()
+	for i := range a.bins {
+		r.bins[i] = sum{a.bins[i].area - b.bins[i].area, a.bins[i].n - b.bins[i].n}
+		if r.bins[i].area < 0 || r.bins[i].n < 0 {
+			return nil, fmt.Errorf("metrics: Sub: exact bin %d of the inner accumulator exceeds the outer one (inner is not nested in outer)", i)
+		}
+	}
+	for i := range a.hist {
+		r.hist[i] = sum{a.hist[i].area - b.hist[i].area, a.hist[i].n - b.hist[i].n}
+		if r.hist[i].area < 0 || r.hist[i].n < 0 {
+			return nil, fmt.Errorf("metrics: Sub: histogram bin %d of the inner accumulator exceeds the outer one (inner is not nested in outer)", i)
+		}
+	}
+	r.cells = a.cells - b.cells
+	r.area = a.area - b.area
+	r.skipped = a.skipped - b.skipped
+	if r.cells < 0 || r.area < 0 || r.skipped < 0 {
+		return nil, errors.New("metrics: Sub: inner accumulator has more cells, area or skipped cells than the outer one (inner is not nested in outer)")
+	}
+	if r.cells > 0 {
+		r.ringRange(a)
+	}
+	return r, nil
+}
+
+// ringRange sets r.min and r.max for a ring cut out of outer.
+func (r *Accumulator) ringRange(outer *Accumulator) {
+	l := r.layout
+	d := l.d
+	m := len(d)
+	slack := 1e-6 * l.histWidth()
+
+	lo, loExact := outer.min, false
+	if outer.min == outer.max && !outer.bounded {
+		r.min, r.max = outer.min, outer.max
+		return
+	}
+	for i := range r.bins {
+		if r.bins[i].n == 0 {
+			continue
+		}
+		if i%2 == 1 {
+			lo, loExact = d[i/2], true
+		} else if i > 0 {
+			lo = math.Max(lo, d[i/2-1])
+		}
+		break
+	}
+	if !loExact {
+		for k := range r.hist {
+			if r.hist[k].n == 0 {
+				continue
+			}
+			if k > 0 {
+				lo = math.Max(lo, l.histEdge(k)-slack)
+			}
+			break
+		}
+	}
+
+	hi, hiExact := outer.max, false
+	for i := len(r.bins) - 1; i >= 0; i-- {
+		if r.bins[i].n == 0 {
+			continue
+		}
+		if i%2 == 1 {
+			hi, hiExact = d[i/2], true
+		} else if i < 2*m {
+			hi = math.Min(hi, d[i/2])
+		}
+		break
+	}
+	if !hiExact {
+		for k := len(r.hist) - 1; k >= 0; k-- {
+			if r.hist[k].n == 0 {
+				continue
+			}
+			if k < len(r.hist)-1 {
+				hi = math.Min(hi, l.histEdge(k+1)+slack)
+			}
+			break
+		}
+	}
+	if hi < lo { // cannot happen for consistent input; keep the pair ordered
+		hi = lo
+	}
+	r.min, r.max = lo, hi
+	r.bounded = !(loExact && hiExact)
+}
+
+// Cells returns the number of cells added.
+func (a *Accumulator) Cells() int64 { return a.cells }
+
+// Area returns the total area weight of the cells added.
+func (a *Accumulator) Area() int64 { return a.area }
+
+// Skipped returns the number of cells Add refused (non-finite value or
+// negative weight).
+func (a *Accumulator) Skipped() int64 { return a.skipped }
+
+// Min returns the smallest value added, or 0 when the accumulator is empty.
+// For a ring made by Sub it may be a lower bound (see RangeExact).
+func (a *Accumulator) Min() float64 {
+	if a.cells == 0 {
+		return 0
+	}
+	return a.min
+}
+
+// Max returns the largest value added, or 0 when the accumulator is empty.
+// For a ring made by Sub it may be an upper bound (see RangeExact).
+func (a *Accumulator) Max() float64 {
+	if a.cells == 0 {
+		return 0
+	}
+	return a.max
+}
+
+// RangeExact reports whether Min and Max are the exact extremes. It is false
+// only for accumulators that come from Sub (or merges with them) whose
+// extremes fall strictly between layout values.
+func (a *Accumulator) RangeExact() bool { return !a.bounded }
+
+// AreaAt returns the exact area weight of the background cells whose value
+// is below, equal to, and above v, which must be a layout value.
+// ok is false when v is not a layout value.
+func (a *Accumulator) AreaAt(v float64) (below, equal, above int64, ok bool) {
+	j := a.layout.index(v)
+	if j < 0 {
+		return 0, 0, 0, false
+	}
+	for i := 0; i < 2*j+1; i++ {
+		below += a.bins[i].area
+	}
+	equal = a.bins[2*j+1].area
+	return below, equal, a.area - below - equal, true
+}

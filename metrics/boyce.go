@@ -1,0 +1,140 @@
+package metrics
+
+import (
+	"math"
+	"sort"
+)
+
+// Boyce is the continuous Boyce index after Hirzel, Le Lay, Helfer, Randin &
+// Guisan (2006).
+//
+// Over the extent's value range [min, max] a window of width
+// w = BoyceWidth*(max-min) moves in BoyceSteps equal steps from [min, min+w]
+// to [max-w, max] (one window at min when BoyceSteps == 1). For window i,
+// both ends inclusive:
+//
+//	P_i = share of test presences with value in the window
+//	E_i = share of the extent's area with value in the window
+//	F_i = P_i / E_i
+//
+// Windows with E_i = 0 are skipped. The index is the Spearman rank
+// correlation (average ranks for ties) between F_i and the window midpoints
+// over the used windows.
+//
+// Approximation: E_i is read from the fine histogram, taking each bin's area
+// as spread uniformly over the bin's interval clipped to [min, max] (end
+// bins extended to min and max when values were clamped into them), and
+// counting the overlapping part of partial bins (linear interpolation). A
+// bin whose clipped interval is a single point counts wholly when the point
+// lies in the window. P_i is exact.
+//
+// Index is 0 and Defined false, with Reason saying why, when fewer than 3
+// windows are used or F or the midpoints do not vary. Mid and Ratio list the
+// used windows' midpoints and F_i.
+//
+// Hirzel, A.H., Le Lay, G., Helfer, V., Randin, C. & Guisan, A. (2006)
+// Evaluating the ability of habitat suitability models to predict species
+// presences. Ecological Modelling 199:142-152.
+type Boyce struct {
+	Index   float64
+	Windows int
+	Used    int
+	Mid     []float64
+	Ratio   []float64
+	Defined bool
+	// Reason says why the index is undefined (empty when Defined).
+	Reason string
+}
+
+// boyce computes the continuous Boyce index; sortedTest is ascending.
+func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce {
+	l := a.layout
+	mn, mx := a.min, a.max
+	span := mx - mn
+	w := width * span
+	b := Boyce{Windows: steps}
+
+	// Effective interval of every histogram bin.
+	H := l.hBins
+	e0 := make([]float64, H)
+	e1 := make([]float64, H)
+	for k := 0; k < H; k++ {
+		lo, hi := l.histEdge(k), l.histEdge(k+1)
+		if k == 0 || lo < mn {
+			lo = mn
+		}
+		if k == H-1 || hi > mx {
+			hi = mx
+		}
+		if hi < lo {
+			hi = lo
+		}
+		e0[k], e1[k] = lo, hi
+	}
+	hw := l.histWidth()
+	total := float64(a.area)
+	n := float64(len(sortedTest))
+
+	areaIn := func(lo, hi float64) float64 {
+		var s float64
+		// Interior bins whose nominal interval can touch [lo, hi]; the
+		// end bins (possibly extended) are visited separately.
+		k0 := int(math.Max(1, math.Min(float64(H), math.Floor((lo-l.hMin)/hw)-1)))
+		k1 := int(math.Max(0, math.Min(float64(H-2), math.Floor((hi-l.hMin)/hw)+1)))
+		visit := func(k int) {
+			ar := a.hist[k].area
+			if ar == 0 {
+				return
+			}
+			if e1[k] > e0[k] {
+				ov := math.Min(e1[k], hi) - math.Max(e0[k], lo)
+				if ov > 0 {
+					s += float64(ar) * ov / (e1[k] - e0[k])
+				}
+			} else if e0[k] >= lo && e0[k] <= hi {
+				s += float64(ar)
+			}
+		}
+		visit(0)
+		for k := k0; k <= k1; k++ {
+			visit(k)
+		}
+		if H > 1 {
+			visit(H - 1)
+		}
+		return s
+	}
+
+	var step float64
+	if steps > 1 {
+		step = (span - w) / float64(steps-1)
+	}
+	for i := 0; i < steps; i++ {
+		lo := mn + float64(i)*step
+		hi := lo + w
+		if i == steps-1 && steps > 1 {
+			hi = mx
+		}
+		ar := areaIn(lo, hi)
+		if !(ar > 0) {
+			continue
+		}
+		c := sort.SearchFloat64s(sortedTest, math.Nextafter(hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, lo)
+		f := (float64(c) / n) / (ar / total)
+		b.Mid = append(b.Mid, lo+w/2)
+		b.Ratio = append(b.Ratio, f)
+	}
+	b.Used = len(b.Mid)
+	switch {
+	case b.Used < 3:
+		b.Reason = "fewer than 3 windows with background area"
+	default:
+		rho, ok := Spearman(b.Ratio, b.Mid)
+		if !ok {
+			b.Reason = "no variation in the predicted/expected ratio or the window midpoints"
+			break
+		}
+		b.Index, b.Defined = rho, true
+	}
+	return b
+}

@@ -1,0 +1,58 @@
+// Package metrics scores one suitability model on one calibration extent,
+// exactly, from a stream of background cells and sets of presence values.
+// It is pure Go (no raster library): the raster pass feeds it numbers.
+//
+// # Flow
+//
+// Per model, build a Layout from every presence value (training and test)
+// and every fixed threshold, plus the range and size of a fine histogram:
+//
+//	l, err := metrics.NewLayout(values, modelMin, modelMax, 4096)
+//
+// Per extent, make an Accumulator. For each raster cell, locate the value
+// once and add it to every extent that holds the cell:
+//
+//	bin, hist := l.Locate(v)
+//	for mask != 0 {
+//		k := bits.TrailingZeros64(mask)
+//		mask &= mask - 1
+//		accs[k].AddLocated(bin, hist, v, areaWeight)
+//	}
+//
+// Accumulators from different goroutines or tiles are combined with Merge;
+// the ring between two nested extents is outer.Sub(inner). Finally Score
+// turns an accumulator and the presence values into Scores.
+//
+// # Exactness
+//
+// Background area is an integer weight per cell (the caller picks the unit),
+// summed in int64, so merged results do not depend on order. Because every
+// presence value and fixed threshold is a layout value, the area below, at
+// and above each of them is known exactly, and so are the full AUC, the
+// partial ROC curve and the threshold statistics. Only the Boyce index reads
+// the fine histogram (see Boyce for the approximation). Score's cost does
+// not depend on the number of cells; the partial ROC bootstrap works on
+// counts of resampled presences.
+//
+// # Undefined quantities
+//
+// No returned number is NaN or infinite. When the whole record cannot be
+// scored (no background, no test presences, constant suitability)
+// Scores.Scored is false and Scores.NotScored says why. A partial ROC curve
+// that cannot be formed has Formed false and Ratio 0; bootstrap resamples
+// that cannot be formed are counted in NotFormed. An undefined Boyce index
+// has Defined false, Index 0 and a Reason. AUCTrain is 0 and the
+// training-presence thresholds are absent when there are no training
+// presences.
+//
+// # Methods
+//
+//   - Full AUC (Mann-Whitney, ties 1/2): Hanley & McNeil (1982) Radiology
+//     143:29-36. See cumulative.auc in score.go and Scores.AUC.
+//   - Partial ROC: Peterson, Papes & Soberon (2008) Ecological Modelling
+//     213:63-72. See PartialROC.
+//   - Threshold omission and binomial test: Anderson, Lew & Peterson (2003)
+//     Ecological Modelling 162:211-232. See Threshold.
+//   - Continuous Boyce index: Hirzel, Le Lay, Helfer, Randin & Guisan (2006)
+//     Ecological Modelling 199:142-152. See Boyce.
+package metrics

@@ -1,0 +1,98 @@
+package metrics
+
+import (
+	"fmt"
+	"math"
+	"slices"
+)
+
+// Defaults applied by Settings.WithDefaults to zero-valued fields.
+const (
+	DefaultE          = 0.05
+	DefaultIterations = 1000
+	DefaultFraction   = 0.5
+	DefaultBoyceWidth = 0.1
+	DefaultBoyceSteps = 100
+)
+
+// Upper limits that keep a bad setting from asking for unbounded work.
+const (
+	MaxIterations = 1_000_000
+	MaxBoyceSteps = 100_000
+)
+
+// Settings are the scoring choices shared by all models and extents of a run.
+// Zero values mean "use the default".
+type Settings struct {
+	// E lists the allowable omission rates of partial ROC, each in (0,1).
+	// Nil or empty means {0.05}.
+	E []float64
+	// Iterations is the number of bootstrap resamples B >= 1 (0 means 1000).
+	Iterations int
+	// Fraction is the share of test presences drawn, with replacement, in
+	// each resample, in (0,1] (0 means 0.5).
+	Fraction float64
+	// Seed seeds the bootstrap. The caller derives one per model x extent.
+	Seed uint64
+	// FixedThresholds are user thresholds scored beside the training
+	// presence thresholds. Each must also be passed to NewLayout so that the
+	// area at or above it is exact.
+	FixedThresholds []float64
+	// BoyceWidth is the Boyce moving-window width as a fraction of the
+	// extent's value range, in (0,1] (0 means 0.1).
+	BoyceWidth float64
+	// BoyceSteps is the number of window positions, >= 1 (0 means 100).
+	BoyceSteps int
+}
+
+// WithDefaults returns s with every zero-valued field set to its default.
+func (s Settings) WithDefaults() Settings {
+	if len(s.E) == 0 {
+		s.E = []float64{DefaultE}
+	} else {
+		s.E = slices.Clone(s.E)
+	}
+	if s.Iterations == 0 {
+		s.Iterations = DefaultIterations
+	}
+	if s.Fraction == 0 {
+		s.Fraction = DefaultFraction
+	}
+	if s.BoyceWidth == 0 {
+		s.BoyceWidth = DefaultBoyceWidth
+	}
+	if s.BoyceSteps == 0 {
+		s.BoyceSteps = DefaultBoyceSteps
+	}
+	s.FixedThresholds = slices.Clone(s.FixedThresholds)
+	return s
+}
+
+// Validate reports the first setting that is out of range, naming the field.
+// Zero values are valid (they select the defaults).
+func (s Settings) Validate() error {
+	s = s.WithDefaults()
+	for i, e := range s.E {
+		if !(e > 0 && e < 1) {
+			return fmt.Errorf("metrics: settings: E[%d] = %v, each allowable omission must be in (0,1)", i, e)
+		}
+	}
+	if s.Iterations < 1 || s.Iterations > MaxIterations {
+		return fmt.Errorf("metrics: settings: Iterations = %d, want 1..%d (0 selects %d)", s.Iterations, MaxIterations, DefaultIterations)
+	}
+	if !(s.Fraction > 0 && s.Fraction <= 1) {
+		return fmt.Errorf("metrics: settings: Fraction = %v, the resample fraction must be in (0,1] (0 selects %v)", s.Fraction, DefaultFraction)
+	}
+	for i, t := range s.FixedThresholds {
+		if math.IsNaN(t) || math.IsInf(t, 0) {
+			return fmt.Errorf("metrics: settings: FixedThresholds[%d] = %v, thresholds must be finite", i, t)
+		}
+	}
+	if !(s.BoyceWidth > 0 && s.BoyceWidth <= 1) {
+		return fmt.Errorf("metrics: settings: BoyceWidth = %v, the window width must be in (0,1] of the value range (0 selects %v)", s.BoyceWidth, DefaultBoyceWidth)
+	}
+	if s.BoyceSteps < 1 || s.BoyceSteps > MaxBoyceSteps {
+		return fmt.Errorf("metrics: settings: BoyceSteps = %d, want 1..%d (0 selects %d)", s.BoyceSteps, MaxBoyceSteps, DefaultBoyceSteps)
+	}
+	return nil
+}

@@ -1,0 +1,228 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// mixTolerance is the largest |AUCOuter - mix| accepted without a warning.
+const mixTolerance = 1e-9
+
+// chains summarises Results.Rings per (chain, model), in order of first
+// appearance.
+func (a *analysis) chains() ([]ChainSummary, []string) {
+	type key struct{ chain, model string }
+	var keys []key
+	groups := map[key][]Ring{}
+	for _, g := range a.r.Rings {
+		k := key{g.Chain, g.Model}
+		if _, ok := groups[k]; !ok {
+			keys = append(keys, k)
+		}
+		groups[k] = append(groups[k], g)
+	}
+	out := []ChainSummary{}
+	var warns []string
+	for _, k := range keys {
+		rings, ok := orderRings(groups[k])
+		if !ok {
+			warns = append(warns, fmt.Sprintf("chain %s, model %s: rings do not link inner to outer; ordered by inner area", k.chain, k.model))
+		}
+		cs, w := a.chainSummary(k.chain, k.model, rings)
+		out = append(out, cs)
+		warns = append(warns, w...)
+	}
+	return out, warns
+}
+
+// orderRings follows the rings from the one whose inner member is no
+// ring's outer member; it falls back to ordering by inner area.
+func orderRings(rs []Ring) ([]Ring, bool) {
+	byInner := map[string]int{}
+	outers := map[string]bool{}
+	for i, g := range rs {
+		if _, dup := byInner[g.Inner]; dup {
+			return sortRings(rs), false
+		}
+		byInner[g.Inner] = i
+		outers[g.Outer] = true
+	}
+	start := -1
+	for i, g := range rs {
+		if !outers[g.Inner] {
+			if start >= 0 {
+				return sortRings(rs), false
+			}
+			start = i
+		}
+	}
+	if start < 0 {
+		return sortRings(rs), false
+	}
+	out := make([]Ring, 0, len(rs))
+	for i := start; len(out) < len(rs); {
+		out = append(out, rs[i])
+		next, ok := byInner[rs[i].Outer]
+		if !ok {
+			break
+		}
+		i = next
+	}
+	if len(out) != len(rs) {
+		return sortRings(rs), false
+	}
+	return out, true
+}
+
+func sortRings(rs []Ring) []Ring {
+	out := append([]Ring(nil), rs...)
+	sort.SliceStable(out, func(i, j int) bool { return out[i].InnerAreaKm2 < out[j].InnerAreaKm2 })
+	return out
+}
+
+func (a *analysis) extentArea(id string, fallback float64) float64 {
+	for _, e := range a.r.Extents {
+		if e.ID == id {
+			return e.AreaKm2
+		}
+	}
+	return fallback
+}
+
+func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary, []string) {
+	cs := ChainSummary{Chain: chain, Model: model, Members: []string{}, MemberAreasKm2: []float64{}, Steps: []ChainStep{}, Largest: -1}
+	var warns []string
+	if len(rings) == 0 {
+		return cs, nil
+	}
+	first := rings[0]
+	cs.Members = append(cs.Members, first.Inner)
+	cs.MemberAreasKm2 = append(cs.MemberAreasKm2, a.extentArea(first.Inner, first.InnerAreaKm2))
+	prev := first.AUCInner
+	if sc := a.score(model, first.Inner); sc != nil {
+		prev = sc.AUC
+	}
+	cs.StartAUC = prev
+	for _, g := range rings {
+		cs.Members = append(cs.Members, g.Outer)
+		cs.MemberAreasKm2 = append(cs.MemberAreasKm2, a.extentArea(g.Outer, g.InnerAreaKm2+g.RingAreaKm2))
+		if d := g.AUCInner - prev; math.Abs(d) > 1e-12 {
+			cs.Steps = append(cs.Steps, ChainStep{Kind: "test_points", Inner: g.Inner, Outer: g.Outer,
+				AUCInner: prev, AUCOuter: g.AUCInner, Change: d})
+		}
+		st := ChainStep{Kind: "ring", Inner: g.Inner, Outer: g.Outer, RingAreaKm2: g.RingAreaKm2, RingCells: g.RingCells,
+			AUCInner: g.AUCInner, AUCOuter: g.AUCOuter, Change: g.AUCOuter - g.AUCInner}
+		if g.RingCells > 0 && g.RingAreaKm2 > 0 {
+			st.AUCRing, st.AUCRingDefined = g.AUCRing, true
+		}
+		if tot := g.InnerAreaKm2 + g.RingAreaKm2; tot > 0 {
+			ring := 0.0
+			if st.AUCRingDefined {
+				ring = g.AUCRing
+			}
+			st.MixResidual = g.AUCOuter - (g.InnerAreaKm2*g.AUCInner+g.RingAreaKm2*ring)/tot
+		}
+		if math.Abs(st.MixResidual) > mixTolerance {
+			warns = append(warns, fmt.Sprintf("chain %s, model %s: AUC of %s (%.6f) is not the area-weighted mix of %s and its ring (off by %.2g)",
+				chain, model, g.Outer, g.AUCOuter, g.Inner, st.MixResidual))
+		}
+		cs.Steps = append(cs.Steps, st)
+		prev = g.AUCOuter
+	}
+	cs.EndAUC = prev
+	cs.Change = cs.EndAUC - cs.StartAUC
+	if math.Abs(cs.Change) > 1e-9 {
+		cs.SharesDefined = true
+		best := 0.0
+		for i := range cs.Steps {
+			cs.Steps[i].Share = cs.Steps[i].Change / cs.Change
+			if v := math.Abs(cs.Steps[i].Share); v > best {
+				best, cs.Largest = v, i
+			}
+		}
+	}
+	cs.Sentence = chainSentence(&cs)
+	return cs, warns
+}
+
+func chainSentence(cs *ChainSummary) string {
+	n := len(cs.Members)
+	head := fmt.Sprintf("Along chain %s, AUC of model %s goes from %s (%s, %s km²) to %s (%s, %s km²)",
+		cs.Chain, cs.Model, f3(cs.StartAUC), cs.Members[0], fmtArea(cs.MemberAreasKm2[0]),
+		f3(cs.EndAUC), cs.Members[n-1], fmtArea(cs.MemberAreasKm2[n-1]))
+	if !cs.SharesDefined {
+		return head + ": it barely changes, so shares are not defined."
+	}
+	st := cs.Steps[cs.Largest]
+	word := "gain"
+	if cs.Change < 0 {
+		word = "loss"
+	}
+	tp, hasTP := 0.0, false
+	for _, x := range cs.Steps {
+		if x.Kind == "test_points" {
+			tp, hasTP = tp+x.Share, true
+		}
+	}
+	tail := ""
+	if hasTP && st.Kind == "ring" {
+		tail = fmt.Sprintf(" Test points that enter along the chain account for %s.", pct(tp))
+	}
+	if st.Kind == "test_points" {
+		return fmt.Sprintf("%s; %s of the %s comes from test points that enter with %s, judged against the background of %s.",
+			head, pct(st.Share), word, st.Outer, st.Inner)
+	}
+	s := fmt.Sprintf("%s; %s of the %s comes from the ring %s minus %s (%s km²)",
+		head, pct(st.Share), word, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
+	switch {
+	case !st.AUCRingDefined:
+		return s + "." + tail
+	case st.AUCRing > st.AUCInner:
+		return s + fmt.Sprintf(", whose AUC is %s: credit for rejecting easy, far-away background rather than for ranking the places near the records.", f3(st.AUCRing)) + tail
+	default:
+		return s + fmt.Sprintf(", whose AUC is %s: background there looks like the presences to the model, so adding it lowers the score.", f3(st.AUCRing)) + tail
+	}
+}
+
+// fmtArea formats an area in km² with three significant digits and
+// thousands separators (e.g. 84,900; 41.2; 0.512).
+func fmtArea(v float64) string {
+	if v <= 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return "0"
+	}
+	if v < 100 {
+		return trimFloat(v, 3)
+	}
+	mag := math.Pow(10, math.Floor(math.Log10(v))-2)
+	r := int64(math.Round(v/mag) * mag)
+	return groupThousands(r)
+}
+
+// trimFloat prints v with sig significant digits, no exponent.
+func trimFloat(v float64, sig int) string {
+	d := sig - 1 - int(math.Floor(math.Log10(math.Abs(v))))
+	if d < 0 {
+		d = 0
+	}
+	return fmt.Sprintf("%.*f", d, v)
+}
+
+func groupThousands(n int64) string {
+	neg := n < 0
+	if neg {
+		n = -n
+	}
+	s := fmt.Sprintf("%d", n)
+	var out []byte
+	for i := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			out = append(out, ',')
+		}
+		out = append(out, s[i])
+	}
+	if neg {
+		return "-" + string(out)
+	}
+	return string(out)
+}

@@ -1,0 +1,162 @@
+package report
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+)
+
+// decompose builds the models x extents table of metric m over the extents
+// scored for every model and splits its sum of squares (see Decomposition).
+func (a *analysis) decompose(m MetricInfo) Decomposition {
+	d := Decomposition{Metric: m.Key, Models: append([]string{}, a.models...), Extents: []string{},
+		Values: [][]float64{}, Rankings: []ExtentRanking{}, DiffersFromBase: []string{}}
+	cols := [][]float64{}
+	for _, e := range a.extents {
+		col := make([]float64, 0, len(a.models))
+		for _, model := range a.models {
+			sc := a.score(model, e.ID)
+			if sc == nil {
+				break
+			}
+			v, ok, _, _, _, _ := metricValue(m, sc, a.r.Settings.Iterations)
+			if !ok {
+				break
+			}
+			col = append(col, v)
+		}
+		if len(col) == len(a.models) {
+			d.Extents = append(d.Extents, e.ID)
+			cols = append(cols, col)
+		}
+	}
+	I, J := len(a.models), len(d.Extents)
+	for i := 0; i < I; i++ {
+		row := make([]float64, J)
+		for j := 0; j < J; j++ {
+			row[j] = cols[j][i]
+		}
+		d.Values = append(d.Values, row)
+	}
+	if J == 0 {
+		d.Note = "no extent is scored for every model"
+		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", m.Label)
+		return d
+	}
+
+	// Rankings per extent.
+	ranks := make([][]float64, J)
+	ties := make([]float64, J)
+	for j := 0; j < J; j++ {
+		ranks[j], ties[j] = averageRanks(cols[j], m.HigherIsBetter)
+	}
+	d.BaseExtent = d.Extents[0]
+	base := 0
+	for j, id := range d.Extents {
+		if id == "base" {
+			d.BaseExtent, base = id, j
+			break
+		}
+	}
+	for j := 0; j < J; j++ {
+		er := ExtentRanking{Extent: d.Extents[j], Ranks: ranks[j], Order: orderByRank(a.models, ranks[j])}
+		for i := range ranks[j] {
+			if ranks[j][i] != ranks[base][i] {
+				er.DiffersFromBase = true
+				break
+			}
+		}
+		if er.DiffersFromBase {
+			d.DiffersFromBase = append(d.DiffersFromBase, er.Extent)
+		}
+		d.Rankings = append(d.Rankings, er)
+	}
+	if w, chi2, df, p, ok := kendallW(ranks, ties); ok {
+		d.KendallW, d.ChiSquare, d.DF, d.PValue, d.KendallWDefined = w, chi2, df, p, true
+	}
+
+	if J < 2 || I < 2 {
+		d.Note = "fewer than two extents scored for every model"
+		d.Sentence = fmt.Sprintf("%s: only %d extent(s) are scored for every model, too few to split extent from model effects.", m.Label, J)
+		return d
+	}
+	// Sums of squares.
+	var gm float64
+	rowMean := make([]float64, I)
+	colMean := make([]float64, J)
+	for i := 0; i < I; i++ {
+		for j := 0; j < J; j++ {
+			v := d.Values[i][j]
+			gm += v
+			rowMean[i] += v / float64(J)
+			colMean[j] += v / float64(I)
+		}
+	}
+	gm /= float64(I * J)
+	d.GrandMean = gm
+	for i := 0; i < I; i++ {
+		for j := 0; j < J; j++ {
+			dv := d.Values[i][j] - gm
+			d.SSTotal += dv * dv
+			res := d.Values[i][j] - rowMean[i] - colMean[j] + gm
+			d.SSResidual += res * res
+		}
+	}
+	for j := 0; j < J; j++ {
+		dv := colMean[j] - gm
+		d.SSExtent += float64(I) * dv * dv
+	}
+	for i := 0; i < I; i++ {
+		dv := rowMean[i] - gm
+		d.SSModel += float64(J) * dv * dv
+	}
+	if d.SSTotal <= 0 {
+		d.Note = "every model scores the same on every extent"
+		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", m.Label)
+		return d
+	}
+	d.Defined = true
+	d.ShareExtent = d.SSExtent / d.SSTotal
+	d.ShareModel = d.SSModel / d.SSTotal
+	d.ShareResidual = d.SSResidual / d.SSTotal
+	d.Sentence = decompositionSentence(m, &d)
+	return d
+}
+
+func orderByRank(models []string, ranks []float64) []string {
+	idx := make([]int, len(models))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(x, y int) bool { return ranks[idx[x]] < ranks[idx[y]] })
+	out := make([]string, len(idx))
+	for k, i := range idx {
+		out[k] = models[i]
+	}
+	return out
+}
+
+func decompositionSentence(m MetricInfo, d *Decomposition) string {
+	var who string
+	switch {
+	case d.ShareExtent >= 0.5:
+		who = "The extent, not the model, explains most of the differences"
+	case d.ShareModel >= 0.5:
+		who = "The model, not the extent, explains most of the differences"
+	case d.ShareResidual >= 0.5:
+		who = "Most of the differences are non-additive: models respond differently to the extent"
+	default:
+		who = "No single source dominates the differences"
+	}
+	s := fmt.Sprintf("%s in %s over %d extents scored for all %d models (extent %s, model %s, non-additive %s of the sum of squares).",
+		who, m.Label, len(d.Extents), len(d.Models), pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
+	if d.KendallWDefined {
+		s += fmt.Sprintf(" Kendall's W = %s: ", f3(d.KendallW))
+		if len(d.DiffersFromBase) == 0 {
+			s += fmt.Sprintf("every extent ranks the models as %s does.", d.BaseExtent)
+		} else {
+			s += fmt.Sprintf("the ranking differs from %s on %s.", d.BaseExtent, strings.Join(d.DiffersFromBase, ", "))
+		}
+	}
+	return s
+}

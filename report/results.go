@@ -1,0 +1,268 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+)
+
+// SchemaVersion is the version of the results.json layout written by this
+// package. It changes whenever a field is renamed or its meaning changes.
+const SchemaVersion = 1
+
+// Results is the whole of one run as written to results.json. Every slice is
+// kept in a stable order (extents in family order, scores by model then
+// extent) so that the same inputs and seed give byte-identical files.
+type Results struct {
+	SchemaVersion int          `json:"schema_version"`
+	Software      Software     `json:"software"`
+	Seed          uint64       `json:"seed"`
+	Settings      Settings     `json:"settings"`
+	Inputs        []Input      `json:"inputs"`
+	Grid          Grid         `json:"grid"`
+	Models        []Model      `json:"models"`
+	Points        []Point      `json:"points"`
+	PointCounts   PointCounts  `json:"point_counts"`
+	Extents       []Extent     `json:"extents"`
+	Scores        []Score      `json:"scores"`
+	Rings         []Ring       `json:"rings"`
+	Omissions     []Omission   `json:"omissions"`
+	Curves        []Curve      `json:"curves"`
+	Preview       *Preview     `json:"preview,omitempty"`
+	Sensitivity   *Sensitivity `json:"sensitivity,omitempty"`
+	Warnings      []string     `json:"warnings"`
+}
+
+// Software names the program that wrote the file.
+type Software struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+// Settings records every choice that changes a number in the file.
+type Settings struct {
+	RegionBuffersKm    []float64 `json:"region_buffers_km"`
+	PointBuffersKm     []float64 `json:"point_buffers_km"`
+	PointBufferAll     bool      `json:"point_buffers_all_points"`
+	HullBuffersKm      []float64 `json:"hull_buffers_km"`
+	EcoregionMinPoints int       `json:"ecoregion_min_points"`
+	EcoregionField     string    `json:"ecoregion_field,omitempty"`
+	E                  []float64 `json:"e"`
+	Iterations         int       `json:"iterations"`
+	ResampleFraction   float64   `json:"resample_fraction"`
+	FixedThresholds    []float64 `json:"fixed_thresholds"`
+	ThinPerCell        bool      `json:"thin_per_cell"`
+	BoyceWindow        float64   `json:"boyce_window"`
+	BoyceSteps         int       `json:"boyce_steps"`
+}
+
+// Input is one input file and its SHA-256 checksum.
+type Input struct {
+	Role   string `json:"role"` // "model:NAME", "occurrences", "region", "ecoregions", "extra"
+	Path   string `json:"path"`
+	SHA256 string `json:"sha256"`
+}
+
+// Grid describes the model raster grid shared by all models.
+type Grid struct {
+	Width        int        `json:"width"`
+	Height       int        `json:"height"`
+	GeoTransform [6]float64 `json:"geotransform"`
+	CRS          string     `json:"crs"` // "EPSG:4326" when known, else the WKT
+	Geographic   bool       `json:"geographic"`
+	CellAreaNote string     `json:"cell_area_method"`
+}
+
+// Model is one suitability raster.
+type Model struct {
+	Name string `json:"name"`
+	Path string `json:"path"`
+	// ValueMin and ValueMax are the smallest and largest valid values seen in
+	// the pass over the whole raster.
+	ValueMin float64 `json:"value_min"`
+	ValueMax float64 `json:"value_max"`
+	// FloorShare is the share of valid area at the model's minimum value:
+	// a large share flags truncated predictions.
+	FloorShare float64 `json:"floor_share"`
+}
+
+// Point is one occurrence record after reading, thinning and sampling.
+type Point struct {
+	ID     int     `json:"id"`   // 1-based data line number in the occurrence file
+	Role   string  `json:"role"` // "train" or "test"
+	Lon    float64 `json:"lon"`
+	Lat    float64 `json:"lat"`
+	Row    int     `json:"row"`
+	Col    int     `json:"col"`
+	Status string  `json:"status"` // "scored", "outside_raster", "nodata", "thinned"
+	// NearestTrainKm is the geodesic distance to the nearest other training
+	// point (test points: nearest training point). Zero when not computed.
+	NearestTrainKm float64 `json:"nearest_train_km"`
+}
+
+// PointCounts summarises Points.
+type PointCounts struct {
+	Train         int `json:"train"`
+	Test          int `json:"test"`
+	Thinned       int `json:"thinned"`
+	OutsideRaster int `json:"outside_raster"`
+	NoData        int `json:"nodata"`
+}
+
+// Extent is one member of the extent family.
+type Extent struct {
+	ID            string  `json:"id"`
+	Kind          string  `json:"kind"`
+	Params        string  `json:"params"`
+	Cells         int64   `json:"cells"`
+	AreaKm2       float64 `json:"area_km2"`
+	TrainPoints   int     `json:"train_points"`
+	TestPoints    int     `json:"test_points"`
+	ShareOfRaster float64 `json:"share_of_raster"`
+	// Status is "ok", "empty" or "duplicate"; DuplicateOf names the earlier
+	// member with the same cells.
+	Status      string `json:"status"`
+	DuplicateOf string `json:"duplicate_of,omitempty"`
+	// Chain names the nested chain this member belongs to (e.g. "region"),
+	// ordered by area; empty when the member is in no chain.
+	Chain string `json:"chain,omitempty"`
+}
+
+// Score holds every metric of one model on one extent.
+type Score struct {
+	Model       string  `json:"model"`
+	Extent      string  `json:"extent"`
+	Scored      bool    `json:"scored"`
+	NotScored   string  `json:"not_scored,omitempty"` // reason when Scored is false
+	Cells       int64   `json:"cells"`
+	AreaKm2     float64 `json:"area_km2"`
+	TestPoints  int     `json:"test_points"`
+	TrainPoints int     `json:"train_points"`
+
+	AUC           float64 `json:"auc"`
+	AUCUnweighted float64 `json:"auc_unweighted"`
+	AUCTrain      float64 `json:"auc_train"`
+	// AUCBootSD is the standard deviation of the test AUC across the
+	// bootstrap resamples used for partial ROC.
+	AUCBootSD float64 `json:"auc_boot_sd"`
+
+	PartialROC []PartialROC `json:"partial_roc"`
+	Thresholds []Threshold  `json:"thresholds"`
+	Boyce      *Boyce       `json:"boyce"`
+}
+
+// PartialROC is the partial ROC result for one allowable omission E.
+type PartialROC struct {
+	E          float64 `json:"e"`
+	Ratio      float64 `json:"ratio"`
+	RatioMean  float64 `json:"ratio_mean"`
+	RatioSD    float64 `json:"ratio_sd"`
+	CILow      float64 `json:"ci_low"`
+	CIHigh     float64 `json:"ci_high"`
+	PValue     float64 `json:"p_value"`
+	Iterations int     `json:"iterations"`
+	NotFormed  int     `json:"iterations_not_formed"`
+}
+
+// Threshold is a threshold-based omission test.
+type Threshold struct {
+	Name         string  `json:"name"` // "minimum_training_presence", "p10_training_presence", "fixed"
+	Value        float64 `json:"value"`
+	Omission     float64 `json:"omission"`
+	AreaFraction float64 `json:"area_fraction"`
+	Successes    int     `json:"successes"`
+	N            int     `json:"n"`
+	PBinomial    float64 `json:"p_binomial"`
+}
+
+// Boyce is the continuous Boyce index and its predicted/expected curve.
+type Boyce struct {
+	Index   float64   `json:"index"`
+	Windows int       `json:"windows"`
+	Used    int       `json:"windows_used"`
+	Mid     []float64 `json:"window_mid"`
+	Ratio   []float64 `json:"pe_ratio"`
+}
+
+// Ring is one step of a nested chain: Outer contains Inner, and the ring is
+// Outer minus Inner. AUCOuter equals the area-weighted mix
+// (InnerAreaKm2*AUCInner + RingAreaKm2*AUCRing) / (InnerAreaKm2+RingAreaKm2).
+type Ring struct {
+	Chain        string  `json:"chain"`
+	Model        string  `json:"model"`
+	Inner        string  `json:"inner"`
+	Outer        string  `json:"outer"`
+	InnerAreaKm2 float64 `json:"inner_area_km2"`
+	RingAreaKm2  float64 `json:"ring_area_km2"`
+	RingCells    int64   `json:"ring_cells"`
+	AUCInner     float64 `json:"auc_inner"`
+	AUCRing      float64 `json:"auc_ring"`
+	AUCOuter     float64 `json:"auc_outer"`
+	// ShareOfChange is (AUCOuter-AUCInner) / (AUCOuter of the chain's last
+	// member - AUCInner of its first member).
+	ShareOfChange float64 `json:"share_of_change"`
+}
+
+// Omission lists the test points a threshold omits for a model. Thresholds
+// depend only on the model and training points, so the list does not
+// depend on the extent.
+type Omission struct {
+	Model     string  `json:"model"`
+	Threshold string  `json:"threshold"`
+	Value     float64 `json:"value"`
+	Omitted   []int   `json:"omitted_point_ids"`
+}
+
+// Curve is a ROC curve on the area axis for one model and extent, thinned to
+// at most a few hundred vertices for drawing. X is the fraction of the
+// extent's area predicted present, Y the fraction of test presences.
+type Curve struct {
+	Model  string    `json:"model"`
+	Extent string    `json:"extent"`
+	X      []float64 `json:"x"`
+	Y      []float64 `json:"y"`
+}
+
+// Preview is a coarse copy of the first model for drawing the map.
+// Values holds Width*Height bytes, row by row from the north, base64-coded:
+// 0..254 scale linearly from ValueMin to ValueMax, 255 is no data.
+// Masks holds one base64 bitset per extent (same order as Results.Extents),
+// bit i = preview cell i (LSB first) lies in that extent.
+type Preview struct {
+	Width    int        `json:"width"`
+	Height   int        `json:"height"`
+	Bounds   [4]float64 `json:"bounds"` // west, south, east, north in grid CRS
+	ValueMin float64    `json:"value_min"`
+	ValueMax float64    `json:"value_max"`
+	Values   string     `json:"values"`
+	Masks    []string   `json:"masks"`
+}
+
+// Load reads a results.json file.
+func Load(path string) (*Results, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("report: read %s: %w", path, err)
+	}
+	var r Results
+	if err := json.Unmarshal(data, &r); err != nil {
+		return nil, fmt.Errorf("report: %s is not a results file: %w", path, err)
+	}
+	if r.SchemaVersion != SchemaVersion {
+		return nil, fmt.Errorf("report: %s has schema_version %d, this build reads %d", path, r.SchemaVersion, SchemaVersion)
+	}
+	return &r, nil
+}
+
+// Encode returns the canonical JSON encoding of r: two-space indent, a final
+// newline, keys in struct order.
+func (r *Results) Encode() ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(r); err != nil {
+		return nil, fmt.Errorf("report: encode results: %w", err)
+	}
+	return buf.Bytes(), nil
+}

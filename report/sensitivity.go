@@ -1,0 +1,570 @@
+package report
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+)
+
+// Cut-offs of the analysis. None of them is a published standard: they are
+// our own choices (marked "common practice" where they follow habit), kept
+// here so that the report and methods text can quote them.
+const (
+	// RobustBootFactor: a metric with a bootstrap SD is "robust" for a model
+	// when its range across extents is at most RobustBootFactor times the
+	// median within-extent bootstrap SD (our choice: about the spread two
+	// resamples of the same extent would show).
+	RobustBootFactor = 2.0
+	// RobustAbsRange: a metric without a bootstrap SD (or with none
+	// available) is "robust" when its range across extents is at most this
+	// (our choice; 0.05 is a common-practice size for a "meaningful" AUC
+	// difference and is applied to every bounded metric alike).
+	RobustAbsRange = 0.05
+	// FloorShareFlag: a model whose minimum value covers at least this share
+	// of the valid area is flagged as truncated (our choice).
+	FloorShareFlag = 0.20
+	// TailJumpFlag: a ROC curve whose last segment (at the lowest threshold)
+	// spans more than this on the area axis is flagged as having a long
+	// straight tail (our choice).
+	TailJumpFlag = 0.20
+	// NearCells: test points within NearCells cell widths of a training point
+	// count as "near" (our choice).
+	NearCells = 3.0
+	// NearShareWarn: warn when more than this share of test points is near a
+	// training point (our choice).
+	NearShareWarn = 0.25
+	// KmPerDegree is the length of one degree of latitude used to turn
+	// geographic cell widths into km (approximation: 40,075 km / 360 at the
+	// equator, scaled by cos(latitude) for longitude).
+	KmPerDegree = 111.32
+)
+
+// Sensitivity holds the analysis of how much each score depends on the
+// extent. It is filled by Analyze. Every number is finite; quantities that
+// cannot be computed are 0 with a false "...defined" flag.
+type Sensitivity struct {
+	// Headline is two or three plain sentences with the key numbers.
+	Headline string `json:"headline"`
+	// Metrics lists the metrics analysed, in report order.
+	Metrics []MetricInfo `json:"metrics"`
+	// ModelNames lists the models, in Results.Models order.
+	ModelNames []string `json:"models"`
+	// ScoredExtents lists the extents used by the analysis (status "ok" and
+	// scored for at least one model), in family order.
+	ScoredExtents []string `json:"scored_extents"`
+	// SkippedExtents lists the extents left out, with the reason.
+	SkippedExtents []SkippedExtent `json:"skipped_extents"`
+	// Unscored lists the scores with Scored=false on usable extents.
+	Unscored []UnscoredScore `json:"unscored_scores"`
+	// Spreads holds one entry per metric and model.
+	Spreads []Spread `json:"spreads"`
+	// Verdicts holds one robustness verdict per metric.
+	Verdicts []Verdict `json:"verdicts"`
+	// Decompositions holds, per metric, the two-way decomposition and the
+	// model rankings; empty with fewer than two models.
+	Decompositions []Decomposition `json:"decompositions"`
+	// Chains summarises the nested rings per chain and model.
+	Chains []ChainSummary `json:"chains"`
+	// Truncation holds one check per model.
+	Truncation []TruncationCheck `json:"truncation"`
+	// Independence describes how far test points lie from training points.
+	Independence Independence `json:"independence"`
+	// OmittedPoints lists, per model and threshold, the omitted test points.
+	OmittedPoints []OmittedPoints `json:"omitted_points"`
+	// Warnings are the analysis' own warnings (Results.Warnings are the run's).
+	Warnings []string `json:"warnings"`
+}
+
+// MetricInfo names one analysed metric.
+type MetricInfo struct {
+	// Key is a stable identifier: "auc", "auc_unweighted",
+	// "partial_roc_e0.05", "omission_minimum_training_presence",
+	// "omission_fixed_0.5", "area_fraction_mtp", "boyce".
+	Key   string `json:"key"`
+	Label string `json:"label"`
+	// Kind is "auc", "auc_unweighted", "partial_roc", "omission",
+	// "area_fraction" or "boyce".
+	Kind string `json:"kind"`
+	// E is the allowable omission of a partial ROC metric.
+	E float64 `json:"e,omitempty"`
+	// Threshold and ThresholdValue identify an omission metric (the value
+	// only for "fixed" thresholds, which can repeat by name).
+	Threshold      string  `json:"threshold,omitempty"`
+	ThresholdValue float64 `json:"threshold_value,omitempty"`
+	// HigherIsBetter orders models in rankings. Omission and area fraction
+	// at the minimum training presence rank lower values first (the latter
+	// is our choice: at a threshold that keeps every training point, a
+	// smaller predicted area is the more specific model).
+	HigherIsBetter bool `json:"higher_is_better"`
+	// BootstrapSD names the Score field holding the within-extent bootstrap
+	// SD ("auc_boot_sd", "ratio_sd"), empty when there is none.
+	BootstrapSD string `json:"bootstrap_sd,omitempty"`
+}
+
+// SkippedExtent is an extent left out of the analysis.
+type SkippedExtent struct {
+	ID          string `json:"id"`
+	Status      string `json:"status"`
+	DuplicateOf string `json:"duplicate_of,omitempty"`
+	Reason      string `json:"reason"`
+}
+
+// UnscoredScore is a model that could not be scored on a usable extent.
+type UnscoredScore struct {
+	Model  string `json:"model"`
+	Extent string `json:"extent"`
+	Reason string `json:"reason"`
+}
+
+// Spread describes one metric of one model across the scored extents.
+//
+// SD is the sample standard deviation (divisor n-1): the extents are
+// treated as a sample of the extents one could reasonably have chosen.
+//
+//	range = max - min
+//	SD    = sqrt( sum (x_e - mean)^2 / (n-1) )
+//	BootSDMedian = median over extents of the within-extent bootstrap SD
+//	               (Score.AUCBootSD for AUC, PartialROC.RatioSD for partial ROC)
+//	RangeOverBootSD = range / BootSDMedian
+type Spread struct {
+	Metric string `json:"metric"`
+	Model  string `json:"model"`
+	N      int    `json:"n"`
+	// Extents, AreasKm2 and Values are the data, in family order.
+	Extents  []string  `json:"extents"`
+	AreasKm2 []float64 `json:"areas_km2"`
+	Values   []float64 `json:"values"`
+	// BootSD holds the within-extent bootstrap SD per extent (0 when the
+	// metric has none); BootLow/BootHigh the interval drawn in the figure:
+	// the partial ROC bootstrap CI, or value -+ bootstrap SD for AUC.
+	BootSD   []float64 `json:"boot_sd,omitempty"`
+	BootLow  []float64 `json:"boot_low,omitempty"`
+	BootHigh []float64 `json:"boot_high,omitempty"`
+
+	Min       float64 `json:"min"`
+	Max       float64 `json:"max"`
+	Range     float64 `json:"range"`
+	MinExtent string  `json:"min_extent"`
+	MaxExtent string  `json:"max_extent"`
+	Mean      float64 `json:"mean"`
+	SD        float64 `json:"sd"`
+	SDDefined bool    `json:"sd_defined"`
+
+	BootSDMedian           float64 `json:"boot_sd_median"`
+	BootSDDefined          bool    `json:"boot_sd_defined"`
+	RangeOverBootSD        float64 `json:"range_over_boot_sd"`
+	RangeOverBootSDDefined bool    `json:"range_over_boot_sd_defined"`
+
+	Slope Slope `json:"slope"`
+
+	// Verdict is "robust", "extent-sensitive" or "undetermined" (n < 2);
+	// Rule names the rule applied and Limit its cut-off for this model.
+	Verdict string  `json:"verdict"`
+	Rule    string  `json:"rule"`
+	Limit   float64 `json:"limit"`
+}
+
+// Slope is the ordinary least-squares slope of a metric against
+// log2(extent area in km2): the change per doubling of the area.
+//
+//	y_e = a + b log2(A_e),  b = Sxy/Sxx,  SE(b) = sqrt(SSE/(n-2)/Sxx)
+//	95% CI: b -+ t(0.975; n-2) SE(b)  (Student's t quantile)
+//	r^2 = 1 - SSE/Syy
+type Slope struct {
+	Defined     bool    `json:"defined"`
+	N           int     `json:"n"`
+	PerDoubling float64 `json:"per_doubling"`
+	Intercept   float64 `json:"intercept"`
+	StdErr      float64 `json:"std_err"`
+	TQuantile   float64 `json:"t_quantile"`
+	CILow       float64 `json:"ci_low"`
+	CIHigh      float64 `json:"ci_high"`
+	CIDefined   bool    `json:"ci_defined"`
+	R2          float64 `json:"r2"`
+	R2Defined   bool    `json:"r2_defined"`
+}
+
+// Verdict is the robustness verdict for one metric over all models: robust
+// when every model with n >= 2 is robust, extent-sensitive when any is.
+type Verdict struct {
+	Metric  string `json:"metric"`
+	Label   string `json:"label"`
+	Verdict string `json:"verdict"`
+	// Sensitive lists the models for which the metric is extent-sensitive.
+	Sensitive []string `json:"sensitive_models"`
+	Sentence  string   `json:"sentence"`
+}
+
+// Decomposition splits the spread of one metric over a models x extents
+// table (only extents scored for every model) into main effects and the
+// non-additive part. With one value per cell there is no replicate, so the
+// residual is the model x extent interaction plus any noise (Tukey 1949,
+// Biometrics 5:232, discusses exactly this case):
+//
+//	SS_total   = sum_ij (x_ij - m)^2
+//	SS_extent  = I sum_j (mean_.j - m)^2      (I models)
+//	SS_model   = J sum_i (mean_i. - m)^2      (J extents)
+//	SS_residual = SS_total - SS_extent - SS_model
+//	            = sum_ij (x_ij - mean_i. - mean_.j + m)^2
+//	shares = SS / SS_total
+//
+// Rankings give rank 1 to the best model on each extent (mid-ranks for
+// ties); Kendall's W measures how well the extents agree on the ranking
+// (see kendallW).
+type Decomposition struct {
+	Metric string `json:"metric"`
+	// Defined is false when fewer than two models or extents are common,
+	// or the table has no spread; Note says why.
+	Defined bool     `json:"defined"`
+	Note    string   `json:"note,omitempty"`
+	Models  []string `json:"models"`
+	Extents []string `json:"extents"`
+	// Values[i][j] is model i on extent j.
+	Values          [][]float64     `json:"values"`
+	GrandMean       float64         `json:"grand_mean"`
+	SSTotal         float64         `json:"ss_total"`
+	SSExtent        float64         `json:"ss_extent"`
+	SSModel         float64         `json:"ss_model"`
+	SSResidual      float64         `json:"ss_residual"`
+	ShareExtent     float64         `json:"share_extent"`
+	ShareModel      float64         `json:"share_model"`
+	ShareResidual   float64         `json:"share_residual"`
+	Rankings        []ExtentRanking `json:"rankings"`
+	BaseExtent      string          `json:"base_extent"`
+	DiffersFromBase []string        `json:"differs_from_base"`
+	KendallW        float64         `json:"kendall_w"`
+	KendallWDefined bool            `json:"kendall_w_defined"`
+	ChiSquare       float64         `json:"chi_square"`
+	DF              int             `json:"df"`
+	PValue          float64         `json:"p_value"`
+	Sentence        string          `json:"sentence"`
+}
+
+// ExtentRanking is the ranking of the models on one extent.
+type ExtentRanking struct {
+	Extent string `json:"extent"`
+	// Ranks are in Decomposition.Models order; rank 1 is best.
+	Ranks []float64 `json:"ranks"`
+	// Order lists the models best first (ties in model order).
+	Order           []string `json:"order"`
+	DiffersFromBase bool     `json:"differs_from_base"`
+}
+
+// ChainSummary follows the AUC of one model along one nested chain. The
+// change from the first to the last member telescopes into steps:
+//
+//	A_0 = AUC of the first member (from Scores; AUCInner of the first ring
+//	      if that score is missing)
+//	test-point step k:  AUCInner_k - A_{k-1}   (test points that enter with
+//	                    the ring, judged against the inner background)
+//	ring step k:        AUCOuter_k - AUCInner_k (background added by ring k)
+//	A_k = AUCOuter_k
+//	share = step / (A_K - A_0)
+//
+// so the shares sum to 1. Test-point steps are listed only when non-zero
+// (|step| > 1e-12). Ring AUCs obey the mix identity
+//
+//	AUCOuter = (A_inner AUCInner + A_ring AUCRing) / (A_inner + A_ring)
+//
+// because the area-weighted AUC is a mean over background area; MixResidual
+// records how far the run's numbers are from it.
+type ChainSummary struct {
+	Chain          string      `json:"chain"`
+	Model          string      `json:"model"`
+	Members        []string    `json:"members"`
+	MemberAreasKm2 []float64   `json:"member_areas_km2"`
+	StartAUC       float64     `json:"start_auc"`
+	EndAUC         float64     `json:"end_auc"`
+	Change         float64     `json:"change"`
+	SharesDefined  bool        `json:"shares_defined"`
+	Steps          []ChainStep `json:"steps"`
+	// Largest is the index in Steps of the step with the largest |share|
+	// (-1 when shares are undefined).
+	Largest  int    `json:"largest"`
+	Sentence string `json:"sentence"`
+}
+
+// ChainStep is one step of a ChainSummary.
+type ChainStep struct {
+	// Kind is "ring" or "test_points".
+	Kind           string  `json:"kind"`
+	Inner          string  `json:"inner"`
+	Outer          string  `json:"outer"`
+	RingAreaKm2    float64 `json:"ring_area_km2"`
+	RingCells      int64   `json:"ring_cells"`
+	AUCInner       float64 `json:"auc_inner"`
+	AUCRing        float64 `json:"auc_ring"`
+	AUCRingDefined bool    `json:"auc_ring_defined"`
+	AUCOuter       float64 `json:"auc_outer"`
+	Change         float64 `json:"change"`
+	Share          float64 `json:"share"`
+	MixResidual    float64 `json:"mix_residual"`
+}
+
+// TruncationCheck flags a model whose predictions look truncated: a floor
+// value covering a large share of the area, or ROC curves ending in a long
+// straight segment (many cells tied at the lowest value).
+type TruncationCheck struct {
+	Model      string  `json:"model"`
+	FloorShare float64 `json:"floor_share"`
+	FloorFlag  bool    `json:"floor_flag"`
+	// Tails lists the extents whose curve's last segment spans more than
+	// TailJumpFlag on the area axis.
+	Tails    []TailJump `json:"tails"`
+	MaxJump  float64    `json:"max_jump"`
+	Flag     bool       `json:"flag"`
+	Sentence string     `json:"sentence"`
+}
+
+// TailJump is the last segment of one ROC curve.
+type TailJump struct {
+	Extent string  `json:"extent"`
+	XFrom  float64 `json:"x_from"`
+	YFrom  float64 `json:"y_from"`
+	Jump   float64 `json:"jump"`
+}
+
+// Independence summarises the distance from each scored test point to the
+// nearest training point (Point.NearestTrainKm). Quartiles use linear
+// interpolation (Hyndman & Fan 1996 definition 7). The cell width is
+// |geotransform[1]| km for a projected grid in metres (/1000), and for a
+// geographic grid |geotransform[1]| * 111.32 * cos(mean latitude of the
+// scored points) km: an approximation (spherical, east-west width).
+type Independence struct {
+	Defined bool    `json:"defined"`
+	N       int     `json:"n"`
+	Min     float64 `json:"min_km"`
+	Q1      float64 `json:"q1_km"`
+	Median  float64 `json:"median_km"`
+	Q3      float64 `json:"q3_km"`
+	Max     float64 `json:"max_km"`
+	// CellWidthKm is the cell width; CellWidthApprox marks the geographic
+	// approximation.
+	CellWidthKm     float64 `json:"cell_width_km"`
+	CellWidthApprox bool    `json:"cell_width_approx"`
+	NearKm          float64 `json:"near_km"`
+	NearCount       int     `json:"near_count"`
+	NearShare       float64 `json:"near_share"`
+	Warn            bool    `json:"warn"`
+	Sentence        string  `json:"sentence"`
+}
+
+// OmittedPoints lists the test points omitted at one threshold of a model.
+type OmittedPoints struct {
+	Model      string  `json:"model"`
+	Threshold  string  `json:"threshold"`
+	Value      float64 `json:"value"`
+	Count      int     `json:"count"`
+	TestPoints int     `json:"test_points"`
+	Share      float64 `json:"share"`
+	IDs        []int   `json:"ids"`
+}
+
+// Analyze computes the sensitivity analysis from r's scores and stores it
+// in r.Sensitivity. Deterministic. Unscored scores and extents whose status
+// is not "ok" are left out of every statistic and listed instead.
+func Analyze(r *Results) error {
+	if r == nil {
+		return errors.New("report: Analyze: nil results")
+	}
+	if err := checkFinite(r); err != nil {
+		return err
+	}
+	a := newAnalysis(r)
+	s := &Sensitivity{
+		Metrics:        a.metrics,
+		ModelNames:     a.models,
+		SkippedExtents: []SkippedExtent{},
+		Unscored:       []UnscoredScore{},
+		Spreads:        []Spread{},
+		Verdicts:       []Verdict{},
+		Decompositions: []Decomposition{},
+		Chains:         []ChainSummary{},
+		Truncation:     []TruncationCheck{},
+		OmittedPoints:  []OmittedPoints{},
+		Warnings:       append([]string{}, a.warnings...),
+	}
+	s.ScoredExtents, s.SkippedExtents, s.Unscored = a.extentUse()
+	for _, m := range a.metrics {
+		for _, model := range a.models {
+			s.Spreads = append(s.Spreads, a.spread(m, model))
+		}
+	}
+	for _, m := range a.metrics {
+		s.Verdicts = append(s.Verdicts, verdictFor(m, s.Spreads))
+	}
+	if len(a.models) >= 2 {
+		for _, m := range a.metrics {
+			s.Decompositions = append(s.Decompositions, a.decompose(m))
+		}
+	}
+	chains, w := a.chains()
+	s.Chains = chains
+	s.Warnings = append(s.Warnings, w...)
+	s.Truncation = a.truncation()
+	s.Independence = a.independence()
+	if s.Independence.Warn {
+		s.Warnings = append(s.Warnings, s.Independence.Sentence)
+	}
+	for _, t := range s.Truncation {
+		if t.Flag {
+			s.Warnings = append(s.Warnings, t.Sentence)
+		}
+	}
+	s.OmittedPoints = a.omitted()
+	s.Headline = headline(a, s)
+	r.Sensitivity = s
+	return nil
+}
+
+// analysis holds the indexes Analyze works from.
+type analysis struct {
+	r        *Results
+	models   []string
+	metrics  []MetricInfo
+	extents  []Extent // status "ok", family order
+	extIndex map[string]int
+	scores   map[[2]string]*Score // (model, extent) -> first score
+	warnings []string
+}
+
+func newAnalysis(r *Results) *analysis {
+	a := &analysis{r: r, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
+	seenModel := map[string]bool{}
+	for _, m := range r.Models {
+		if !seenModel[m.Name] {
+			seenModel[m.Name] = true
+			a.models = append(a.models, m.Name)
+		}
+	}
+	allExt := map[string]bool{}
+	for i, e := range r.Extents {
+		allExt[e.ID] = true
+		if e.Status == "ok" {
+			a.extIndex[e.ID] = i
+			a.extents = append(a.extents, e)
+		}
+	}
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		if !allExt[sc.Extent] {
+			a.warnings = append(a.warnings, fmt.Sprintf("score of model %s names extent %q, which is not in the extent family: ignored", sc.Model, sc.Extent))
+			continue
+		}
+		if !seenModel[sc.Model] {
+			seenModel[sc.Model] = true
+			a.models = append(a.models, sc.Model)
+		}
+		k := [2]string{sc.Model, sc.Extent}
+		if _, dup := a.scores[k]; dup {
+			a.warnings = append(a.warnings, fmt.Sprintf("model %s has two scores on extent %s: the first is used", sc.Model, sc.Extent))
+			continue
+		}
+		a.scores[k] = sc
+	}
+	a.metrics = buildMetrics(r)
+	return a
+}
+
+// score returns the usable score of model on extent (ok extent, scored).
+func (a *analysis) score(model, extent string) *Score {
+	if _, ok := a.extIndex[extent]; !ok {
+		return nil
+	}
+	sc := a.scores[[2]string{model, extent}]
+	if sc == nil || !sc.Scored {
+		return nil
+	}
+	return sc
+}
+
+func (a *analysis) extentUse() ([]string, []SkippedExtent, []UnscoredScore) {
+	scored := []string{}
+	skipped := []SkippedExtent{}
+	uns := []UnscoredScore{}
+	for _, e := range a.r.Extents {
+		switch e.Status {
+		case "ok":
+		case "empty":
+			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "the extent has no valid cells"})
+			continue
+		case "duplicate":
+			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, DuplicateOf: e.DuplicateOf, Reason: "same cells as " + e.DuplicateOf})
+			continue
+		default:
+			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "status " + strconv.Quote(e.Status)})
+			continue
+		}
+		any := false
+		for _, m := range a.models {
+			if a.score(m, e.ID) != nil {
+				any = true
+			} else {
+				reason := "no score"
+				if sc := a.scores[[2]string{m, e.ID}]; sc != nil && sc.NotScored != "" {
+					reason = sc.NotScored
+				}
+				uns = append(uns, UnscoredScore{Model: m, Extent: e.ID, Reason: reason})
+			}
+		}
+		if any {
+			scored = append(scored, e.ID)
+		} else {
+			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "no model could be scored"})
+		}
+	}
+	return scored, skipped, uns
+}
+
+// checkFinite rejects NaN and Inf in the numbers the analysis reads.
+func checkFinite(r *Results) error {
+	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
+	for _, e := range r.Extents {
+		if bad(e.AreaKm2) {
+			return fmt.Errorf("report: extent %s: area_km2 is not finite", e.ID)
+		}
+	}
+	for _, m := range r.Models {
+		if bad(m.FloorShare) || bad(m.ValueMin) || bad(m.ValueMax) {
+			return fmt.Errorf("report: model %s: value range or floor share is not finite", m.Name)
+		}
+	}
+	for _, s := range r.Scores {
+		where := fmt.Sprintf("report: score %s on %s", s.Model, s.Extent)
+		if bad(s.AUC) || bad(s.AUCUnweighted) || bad(s.AUCTrain) || bad(s.AUCBootSD) || bad(s.AreaKm2) {
+			return fmt.Errorf("%s: an AUC field is not finite", where)
+		}
+		for _, p := range s.PartialROC {
+			if bad(p.E) || bad(p.Ratio) || bad(p.RatioMean) || bad(p.RatioSD) || bad(p.CILow) || bad(p.CIHigh) || bad(p.PValue) {
+				return fmt.Errorf("%s: partial ROC at E=%g is not finite", where, p.E)
+			}
+		}
+		for _, t := range s.Thresholds {
+			if bad(t.Value) || bad(t.Omission) || bad(t.AreaFraction) || bad(t.PBinomial) {
+				return fmt.Errorf("%s: threshold %s is not finite", where, t.Name)
+			}
+		}
+		if s.Boyce != nil && bad(s.Boyce.Index) {
+			return fmt.Errorf("%s: Boyce index is not finite", where)
+		}
+	}
+	for _, g := range r.Rings {
+		if bad(g.AUCInner) || bad(g.AUCRing) || bad(g.AUCOuter) || bad(g.InnerAreaKm2) || bad(g.RingAreaKm2) {
+			return fmt.Errorf("report: ring %s-%s of model %s is not finite", g.Inner, g.Outer, g.Model)
+		}
+	}
+	for _, c := range r.Curves {
+		for i := range c.X {
+			if bad(c.X[i]) || (i < len(c.Y) && bad(c.Y[i])) {
+				return fmt.Errorf("report: ROC curve of model %s on %s is not finite", c.Model, c.Extent)
+			}
+		}
+	}
+	for _, p := range r.Points {
+		if bad(p.NearestTrainKm) || bad(p.Lat) || bad(p.Lon) {
+			return fmt.Errorf("report: point %d: coordinates or distance not finite", p.ID)
+		}
+	}
+	return nil
+}

@@ -1,0 +1,211 @@
+package report
+
+import (
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// meanOf returns the arithmetic mean of xs (0 for an empty slice).
+func meanOf(xs []float64) float64 {
+	if len(xs) == 0 {
+		return 0
+	}
+	var s float64
+	for _, x := range xs {
+		s += x
+	}
+	return s / float64(len(xs))
+}
+
+// sampleSD returns the sample standard deviation (divisor n-1) of xs and
+// whether it is defined (n >= 2):
+//
+//	s = sqrt( sum_i (x_i - mean)^2 / (n - 1) )
+func sampleSD(xs []float64) (float64, bool) {
+	n := len(xs)
+	if n < 2 {
+		return 0, false
+	}
+	m := meanOf(xs)
+	var ss float64
+	for _, x := range xs {
+		d := x - m
+		ss += d * d
+	}
+	return math.Sqrt(ss / float64(n-1)), true
+}
+
+// quantile7 returns the p-quantile of xs by linear interpolation between
+// order statistics (Hyndman & Fan 1996, Am. Stat. 50:361, definition 7, the
+// default of R and numpy):
+//
+//	h = (n-1) p,  Q(p) = x_(floor h) + (h - floor h) (x_(floor h + 1) - x_(floor h))
+//
+// with 0-based order statistics. xs must be sorted ascending and non-empty.
+func quantile7(sorted []float64, p float64) float64 {
+	n := len(sorted)
+	if n == 1 {
+		return sorted[0]
+	}
+	h := float64(n-1) * p
+	lo := int(math.Floor(h))
+	if lo >= n-1 {
+		return sorted[n-1]
+	}
+	return sorted[lo] + (h-float64(lo))*(sorted[lo+1]-sorted[lo])
+}
+
+// medianOf returns the median of xs (the mean of the two middle values for
+// an even count); xs is not modified. It returns false for an empty slice.
+func medianOf(xs []float64) (float64, bool) {
+	if len(xs) == 0 {
+		return 0, false
+	}
+	s := append([]float64(nil), xs...)
+	sort.Float64s(s)
+	return quantile7(s, 0.5), true
+}
+
+// olsFit is an ordinary least-squares line y = a + b x.
+type olsFit struct {
+	n          int
+	a, b       float64
+	seB        float64
+	r2         float64
+	r2Defined  bool
+	t          float64
+	ciLo, ciHi float64
+	ciDefined  bool
+}
+
+// ols fits y = a + b x by ordinary least squares (e.g. Draper & Smith 1998,
+// Applied Regression Analysis, ch. 1):
+//
+//	b = Sxy / Sxx,  a = mean(y) - b mean(x)
+//	SE(b) = sqrt( SSE / (n-2) / Sxx ),  SSE = sum (y - a - b x)^2
+//	r^2 = 1 - SSE / Syy
+//	95% CI of b: b -+ t(0.975; n-2) SE(b)
+//
+// It returns false when n < 2 or all x are equal. The CI needs n >= 3.
+func ols(x, y []float64) (olsFit, bool) {
+	n := len(x)
+	f := olsFit{n: n}
+	if n < 2 || len(y) != n {
+		return f, false
+	}
+	mx, my := meanOf(x), meanOf(y)
+	var sxx, sxy, syy float64
+	for i := range x {
+		dx, dy := x[i]-mx, y[i]-my
+		sxx += dx * dx
+		sxy += dx * dy
+		syy += dy * dy
+	}
+	if sxx <= 0 {
+		return f, false
+	}
+	f.b = sxy / sxx
+	f.a = my - f.b*mx
+	var sse float64
+	for i := range x {
+		e := y[i] - f.a - f.b*x[i]
+		sse += e * e
+	}
+	if syy > 0 {
+		f.r2 = 1 - sse/syy
+		f.r2Defined = true
+	}
+	if n >= 3 {
+		f.seB = math.Sqrt(sse / float64(n-2) / sxx)
+		f.t = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(n - 2)}.Quantile(0.975)
+		f.ciLo = f.b - f.t*f.seB
+		f.ciHi = f.b + f.t*f.seB
+		f.ciDefined = true
+	}
+	return f, true
+}
+
+// averageRanks ranks xs so that rank 1 goes to the best value (largest when
+// higherBetter, else smallest); tied values share the mean of the ranks they
+// span (the "average" or mid-rank method). It also returns the tie term
+// sum over tie groups of (t^3 - t) used by Kendall's W.
+func averageRanks(xs []float64, higherBetter bool) ([]float64, float64) {
+	n := len(xs)
+	idx := make([]int, n)
+	for i := range idx {
+		idx[i] = i
+	}
+	better := func(a, b float64) bool {
+		if higherBetter {
+			return a > b
+		}
+		return a < b
+	}
+	sort.SliceStable(idx, func(i, j int) bool { return better(xs[idx[i]], xs[idx[j]]) })
+	ranks := make([]float64, n)
+	var tie float64
+	for i := 0; i < n; {
+		j := i + 1
+		for j < n && xs[idx[j]] == xs[idx[i]] {
+			j++
+		}
+		r := float64(i+j+1) / 2 // mean of ranks i+1 .. j
+		for k := i; k < j; k++ {
+			ranks[idx[k]] = r
+		}
+		t := float64(j - i)
+		tie += t*t*t - t
+		i = j
+	}
+	return ranks, tie
+}
+
+// kendallW is Kendall's coefficient of concordance W with the correction
+// for ties (Kendall & Babington Smith 1939, Ann. Math. Stat. 10:275;
+// Legendre 2005, J. Agric. Biol. Environ. Stat. 10:226, eq. 2):
+//
+//	R_i = sum_j r_ij   (sum of the ranks of object i over the m judges)
+//	S   = sum_i (R_i - mean R)^2
+//	W   = 12 S / ( m^2 (n^3 - n) - m sum_j T_j ),  T_j = sum (t^3 - t) over tie groups of judge j
+//
+// and its chi-square test, chi2 = m (n-1) W with n-1 degrees of freedom
+// (Legendre 2005, eq. 3). ranks[j][i] is the rank given by judge j to
+// object i; ties[j] is T_j. It returns false when W is undefined (m < 2,
+// n < 2, or every judge ties every object).
+func kendallW(ranks [][]float64, ties []float64) (w, chi2 float64, df int, p float64, ok bool) {
+	m := len(ranks)
+	if m < 2 {
+		return 0, 0, 0, 0, false
+	}
+	n := len(ranks[0])
+	if n < 2 {
+		return 0, 0, 0, 0, false
+	}
+	R := make([]float64, n)
+	for _, row := range ranks {
+		for i, r := range row {
+			R[i] += r
+		}
+	}
+	mr := meanOf(R)
+	var s float64
+	for _, v := range R {
+		s += (v - mr) * (v - mr)
+	}
+	var tsum float64
+	for _, t := range ties {
+		tsum += t
+	}
+	fm, fn := float64(m), float64(n)
+	den := fm*fm*(fn*fn*fn-fn) - fm*tsum
+	if den <= 0 {
+		return 0, 0, 0, 0, false
+	}
+	w = 12 * s / den
+	df = n - 1
+	chi2 = fm * float64(df) * w
+	p = distuv.ChiSquared{K: float64(df)}.Survival(chi2)
+	return w, chi2, df, p, true
+}
