@@ -21,20 +21,20 @@ const MaxMembers = 64
 
 // Kinds of family member.
 const (
-	KindBase           = "base"
-	KindRegionBuffer   = "region_buffer"
-	KindPointBuffer    = "point_buffer"
-	KindHull           = "hull"
-	KindEcoregions     = "ecoregions"
-	KindWholeRaster    = "whole_raster"
-	KindUser           = "user"
-	StatusOK           = "ok"
-	StatusEmpty        = "empty"
-	StatusDuplicate    = "duplicate"
-	chainRegion        = "region"
-	chainPoints        = "points"
-	chainHull          = "hull"
-	chainEcoregions    = "ecoregions"
+	KindBase         = "base"
+	KindRegionBuffer = "region_buffer"
+	KindPointBuffer  = "point_buffer"
+	KindHull         = "hull"
+	KindEcoregions   = "ecoregions"
+	KindWholeRaster  = "whole_raster"
+	KindUser         = "user"
+	StatusOK         = "ok"
+	StatusEmpty      = "empty"
+	StatusDuplicate  = "duplicate"
+	chainRegion      = "region"
+	chainPoints      = "points"
+	chainHull        = "hull"
+	chainEcoregions  = "ecoregions"
 )
 
 // ErrTooManyMembers is returned when the settings ask for more than
@@ -724,4 +724,3 @@ func (f *Family) ChainNames() []string {
 	sort.Strings(names)
 	return names
 }
-

@@ -7,10 +7,6 @@ import (
 	"sort"
 )
 
-// maxLinearScan is the bucket occupancy above which Locate switches from a
-// linear scan to a binary search inside the bucket.
-const maxLinearScan = 8
-
 // maxLookup caps the number of lookup buckets (and so the table's memory).
 const maxLookup = 1 << 22
 
@@ -41,14 +37,17 @@ const minHistBins = 16
 // of histBins equal bins over [histMin, histMax) that the Boyce index reads.
 type Layout struct {
 	d    []float64 // sorted distinct values
-	d0   float64   // d[0] (0 when empty)
-	dMax float64   // d[m-1] (0 when empty)
+	ds   []float64 // d followed by three +Inf sentinels
+	d0   float64   // d[0] (+Inf when empty)
+	dMax float64   // d[m-1] (-Inf when empty)
+	top  int       // 2m, the last exact bin
 
 	// Lookup table: bucket(v) = min(int((v-d0)*scale), nb-1) for v in
 	// [d0, dMax]; idx[k] is the first j with bucket(d[j]) >= k, so the
 	// candidates for v in bucket k are d[idx[k]:idx[k+1]].
 	scale float64
 	nb    int
+	nbf   float64 // float64(nb)
 	idx   []int32
 
 	hMin, hMax, hScale float64
@@ -85,13 +84,15 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 	slices.Sort(d)
 	d = slices.Compact(d) // -0 and +0 compare equal and collapse too
 	m := len(d)
-	l := &Layout{d: d, hMin: histMin, hMax: histMax, hScale: hScale, hBins: histBins, nb: 1}
+	ds := append(d[:m:m], math.Inf(1), math.Inf(1), math.Inf(1))
+	l := &Layout{d: ds[:m], ds: ds, hMin: histMin, hMax: histMax, hScale: hScale, hBins: histBins, nb: 1,
+		top: 2 * m, d0: math.Inf(1), dMax: math.Inf(-1)}
 	if m > 0 {
 		l.d0, l.dMax = d[0], d[m-1]
 	}
 	if m >= 2 {
 		nb := 1
-		for nb < 2*m && nb < maxLookup {
+		for nb < 4*m && nb < maxLookup {
 			nb <<= 1
 		}
 		l.nb = nb
@@ -102,6 +103,7 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 			l.nb, l.scale = 1, 0
 		}
 	}
+	l.nbf = float64(l.nb)
 	l.idx = make([]int32, l.nb+1)
 	j := 0
 	for k := 0; k <= l.nb; k++ {
@@ -116,18 +118,19 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 // bucket maps v in [d0, dMax] to its lookup bucket. It is monotone
 // non-decreasing in v, which is what makes the lookup exact.
 func (l *Layout) bucket(v float64) int {
-	k := int((v - l.d0) * l.scale)
-	if k >= l.nb {
-		k = l.nb - 1
+	x := (v - l.d0) * l.scale
+	if !(x < l.nbf) { // also catches NaN from Inf*0 on overflowing spans
+		return l.nb - 1
 	}
-	return k
+	return int(x)
 }
 
 // Locate returns the exact bin of v (see Layout) and its fine-histogram bin.
 // It costs O(1) on average: a lookup table over [d_0, d_{m-1}] narrows the
-// search to a handful of candidates that are scanned linearly (or searched
-// by bisection when a bucket is crowded). NaN is mapped to (0, 0); callers
-// that may see NaN should use Accumulator.Add, which skips it.
+// search to the (usually at most two) layout values in v's bucket, which are
+// compared without branches; a crowded bucket falls back to bisection.
+// NaN is mapped to (0, 0); callers that may see NaN should use
+// Accumulator.Add, which skips it.
 func (l *Layout) Locate(v float64) (bin, hist int) {
 	if v >= l.hMin { // false for NaN
 		if v < l.hMax {
@@ -139,29 +142,39 @@ func (l *Layout) Locate(v float64) (bin, hist int) {
 			hist = l.hBins - 1
 		}
 	}
-	m := len(l.d)
-	if m == 0 || !(v >= l.d0) {
+	if !(v >= l.d0) { // below d_0, NaN, or no layout values (d0 = +Inf)
 		return 0, hist
 	}
 	if v > l.dMax {
-		return 2 * m, hist
+		return l.top, hist
 	}
-	k := int((v - l.d0) * l.scale)
-	if k >= l.nb {
-		k = l.nb - 1
+	k := l.nb - 1
+	if x := (v - l.d0) * l.scale; x < l.nbf {
+		k = int(x)
 	}
 	j, end := int(l.idx[k]), int(l.idx[k+1])
-	if end-j > maxLinearScan {
-		j += sort.SearchFloat64s(l.d[j:end], v)
-	} else {
-		for j < end && l.d[j] < v {
-			j++
-		}
+	if end-j > 2 {
+		return l.locateCrowded(v, j, end), hist
 	}
+	// At most two candidates d[j], d[j+1], and every d from end on is > v
+	// (or a +Inf sentinel), so the first d >= v is d[j + (a<v) + (b<v)]
+	// and, the values being sorted, it equals v iff one of a, b, c does.
+	// The three loads are independent, which keeps the dependency chain
+	// short.
+	w := l.ds[j : j+3 : j+3]
+	a, b, c := w[0], w[1], w[2]
+	j += b2i(a < v) + b2i(b < v)
+	return 2*j + (b2i(a == v) | b2i(b == v) | b2i(c == v)), hist
+}
+
+// locateCrowded finds the exact bin of v among the candidates d[j:end] of
+// a bucket holding more than two layout values.
+func (l *Layout) locateCrowded(v float64, j, end int) int {
+	j += sort.SearchFloat64s(l.d[j:end], v)
 	if j < end && l.d[j] == v {
-		return 2*j + 1, hist
+		return 2*j + 1
 	}
-	return 2 * j, hist
+	return 2 * j
 }
 
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.
@@ -195,4 +208,13 @@ func (l *Layout) index(v float64) int {
 		return -1
 	}
 	return j
+}
+
+// b2i converts a comparison to 0 or 1 without a branch.
+func b2i(b bool) int {
+	var i int
+	if b {
+		i = 1
+	}
+	return i
 }

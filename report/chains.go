@@ -6,8 +6,13 @@ import (
 	"sort"
 )
 
-// mixTolerance is the largest |AUCOuter - mix| accepted without a warning.
-const mixTolerance = 1e-9
+const (
+	// mixTolerance is the largest |AUCOuter - mix| accepted without a warning.
+	mixTolerance = 1e-9
+	// sameAUC: two AUCs closer than this are the same number written with
+	// different rounding (results.json may round scores).
+	sameAUC = 1e-9
+)
 
 // chains summarises Results.Rings per (chain, model), in order of first
 // appearance.
@@ -107,9 +112,12 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 	for _, g := range rings {
 		cs.Members = append(cs.Members, g.Outer)
 		cs.MemberAreasKm2 = append(cs.MemberAreasKm2, a.extentArea(g.Outer, g.InnerAreaKm2+g.RingAreaKm2))
-		if d := g.AUCInner - prev; math.Abs(d) > 1e-12 {
+		if d := g.AUCInner - prev; math.Abs(d) > sameAUC {
 			cs.Steps = append(cs.Steps, ChainStep{Kind: "test_points", Inner: g.Inner, Outer: g.Outer,
 				AUCInner: prev, AUCOuter: g.AUCInner, Change: d})
+		} else if len(cs.Steps) == 0 {
+			// Same test points: the score and the ring differ by rounding only.
+			cs.StartAUC = g.AUCInner
 		}
 		st := ChainStep{Kind: "ring", Inner: g.Inner, Outer: g.Outer, RingAreaKm2: g.RingAreaKm2, RingCells: g.RingCells,
 			AUCInner: g.AUCInner, AUCOuter: g.AUCOuter, Change: g.AUCOuter - g.AUCInner}

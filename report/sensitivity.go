@@ -263,7 +263,8 @@ type ExtentRanking struct {
 //	share = step / (A_K - A_0)
 //
 // so the shares sum to 1. Test-point steps are listed only when non-zero
-// (|step| > 1e-12). Ring AUCs obey the mix identity
+// (|step| > 1e-9; smaller differences are rounding, and A_0 then is
+// AUCInner of the first ring). Ring AUCs obey the mix identity
 //
 //	AUCOuter = (A_inner AUCInner + A_ring AUCRing) / (A_inner + A_ring)
 //

@@ -518,3 +518,24 @@ func BenchmarkParseStudy(b *testing.B) {
 		}
 	})
 }
+
+// FuzzParseStudy checks that no study text makes the reader panic, and that
+// every error carries the package prefix.
+func FuzzParseStudy(f *testing.F) {
+	f.Add(fullStudy)
+	for _, s := range []string{"", "~", "model:\n  a: b\n", "e: &x [1]\nthresholds: *x\n", "seed: -1\n", "a: b: c\n", "- 1\n", "---\n---\n"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, in string) {
+		st, err := ParseStudy(strings.NewReader(in), "fuzz.yaml", "/b")
+		if err != nil {
+			if st != nil || !strings.HasPrefix(err.Error(), "inputs: ") {
+				t.Fatalf("bad error result %v %v", st, err)
+			}
+			return
+		}
+		if st == nil {
+			t.Fatal("nil study without error")
+		}
+	})
+}

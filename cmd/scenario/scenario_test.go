@@ -304,7 +304,7 @@ func TestWriteFiles(t *testing.T) {
 			"region":               "region.gpkg",
 			"ecoregions":           "ecoregions.gpkg",
 			"ecoregion-field":      "unit_id",
-			"region-buffers":       []any{-50, 100, 250, 500, 1000},
+			"region-buffers":       []any{-50, 100, 250, 500},
 			"point-buffers":        []any{50, 100, 200},
 			"hull-buffers":         []any{0, 100},
 			"ecoregion-min-points": 1,

@@ -1,0 +1,539 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/report"
+)
+
+// binary is the areasweep executable built once for the end-to-end tests.
+var areasweepBin string
+
+func TestMain(m *testing.M) {
+	dir, err := os.MkdirTemp("", "areasweep-e2e-")
+	if err != nil {
+		fmt.Fprintln(os.Stderr, err)
+		os.Exit(1)
+	}
+	areasweepBin = filepath.Join(dir, "areasweep")
+	out, err := exec.Command("go", "build", "-o", areasweepBin, ".").CombinedOutput()
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "build areasweep: %v\n%s", err, out)
+		os.Exit(1)
+	}
+	godal.RegisterAll()
+	code := m.Run()
+	os.RemoveAll(dir)
+	os.Exit(code)
+}
+
+// runBin runs the built binary and returns stdout, stderr and exit code.
+func runBin(t *testing.T, args ...string) (string, string, int) {
+	t.Helper()
+	cmd := exec.Command(areasweepBin, args...)
+	var so, se bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &so, &se
+	err := cmd.Run()
+	code := 0
+	if ee, ok := err.(*exec.ExitError); ok {
+		code = ee.ExitCode()
+	} else if err != nil {
+		t.Fatalf("run %v: %v", args, err)
+	}
+	return so.String(), se.String(), code
+}
+
+// smallStudy is a tiny generated study on a latitude-longitude grid: 48 x
+// 32 cells of 0.25 degrees between 40 and 48 N, so cell areas differ by
+// row. Values: a smooth ridge in [0,1] rounded to 1/50 (ties on purpose),
+// no-data in one corner.
+type smallStudy struct {
+	dir, model, model2, occ, region, far string
+	vals                                 []float64 // row-major, NaN = no data
+	w, h                                 int
+	gt                                   [6]float64
+}
+
+const smallNoData = -1
+
+func writeRaster(t *testing.T, path string, w, h int, gt [6]float64, vals []float64, withCRS bool) {
+	t.Helper()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=16", "BLOCKYSIZE=16"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.SetGeoTransform(gt); err != nil {
+		t.Fatal(err)
+	}
+	if withCRS {
+		sr, _ := godal.NewSpatialRefFromEPSG(4326)
+		if err := ds.SetSpatialRef(sr); err != nil {
+			t.Fatal(err)
+		}
+	}
+	b := ds.Bands()[0]
+	b.SetNoData(smallNoData)
+	buf := make([]float32, len(vals))
+	for i, v := range vals {
+		if math.IsNaN(v) {
+			buf[i] = smallNoData
+		} else {
+			buf[i] = float32(v)
+		}
+	}
+	if err := b.Write(0, 0, buf, w, h); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func newSmallStudy(t *testing.T) *smallStudy {
+	t.Helper()
+	s := &smallStudy{dir: t.TempDir(), w: 48, h: 32, gt: [6]float64{10, 0.25, 0, 48, 0, -0.25}}
+	s.vals = make([]float64, s.w*s.h)
+	for r := 0; r < s.h; r++ {
+		for c := 0; c < s.w; c++ {
+			lon, lat := 10+(float64(c)+0.5)*0.25, 48-(float64(r)+0.5)*0.25
+			v := math.Exp(-((lon-15)*(lon-15)/8 + (lat-44)*(lat-44)/4))
+			v = math.Round(v*50) / 50
+			if c >= 44 && r >= 28 {
+				v = math.NaN()
+			}
+			s.vals[r*s.w+c] = v
+		}
+	}
+	s.model = filepath.Join(s.dir, "model.tif")
+	writeRaster(t, s.model, s.w, s.h, s.gt, s.vals, true)
+	// A second model: same grid, values squared (same ranking: same AUC).
+	v2 := make([]float64, len(s.vals))
+	for i, v := range s.vals {
+		v2[i] = v * v
+	}
+	s.model2 = filepath.Join(s.dir, "model2.tif")
+	writeRaster(t, s.model2, s.w, s.h, s.gt, v2, true)
+	// Occurrences near the ridge: train on a lattice, test between.
+	var sb strings.Builder
+	sb.WriteString("lon,lat,role\n")
+	for i := 0; i < 6; i++ {
+		for j := 0; j < 4; j++ {
+			sb.WriteString(fmt.Sprintf("%.3f,%.3f,train\n", 13.1+float64(i)*0.8, 42.6+float64(j)*0.9))
+			sb.WriteString(fmt.Sprintf("%.3f,%.3f,test\n", 13.5+float64(i)*0.8, 43.0+float64(j)*0.9))
+		}
+	}
+	// One far test point and one point outside the raster.
+	sb.WriteString("10.6,47.6,test\n")
+	sb.WriteString("30.0,47.0,test\n")
+	s.occ = filepath.Join(s.dir, "occ.csv")
+	os.WriteFile(s.occ, []byte(sb.String()), 0o644)
+	s.region = filepath.Join(s.dir, "region.geojson")
+	os.WriteFile(s.region, []byte(`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:OGC:1.3:CRS84"}},"features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,41.5],[18.5,46.5],[12.5,46.5],[12.5,41.5]]]}}]}`), 0o644)
+	s.far = filepath.Join(s.dir, "far.geojson")
+	os.WriteFile(s.far, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[100,10],[101,10],[101,11],[100,11],[100,10]]]}}]}`), 0o644)
+	return s
+}
+
+// cellAreaKm2 is the WGS84 area of a latitude-longitude cell by the
+// authalic-latitude formula A = R_q^2 dlon (sin b2 - sin b1), written here
+// independently of the geodesy package (Snyder 1987, USGS PP 1395, eq. 3-11
+// and 3-13).
+func cellAreaKm2(lat1, lat2, dlonDeg float64) float64 {
+	a := 6378.137
+	f := 1 / 298.257223563
+	e2 := f * (2 - f)
+	e := math.Sqrt(e2)
+	q := func(phi float64) float64 {
+		s := math.Sin(phi)
+		return (1 - e2) * (s/(1-e2*s*s) - 1/(2*e)*math.Log((1-e*s)/(1+e*s)))
+	}
+	qp := q(math.Pi / 2)
+	rq2 := a * a * qp / 2
+	beta := func(lat float64) float64 { return math.Asin(q(lat*math.Pi/180) / qp) }
+	return rq2 * dlonDeg * math.Pi / 180 * (math.Sin(beta(lat2)) - math.Sin(beta(lat1)))
+}
+
+// bruteAUC is the area-weighted Mann-Whitney AUC by the definition, over
+// every pair (presence, background cell).
+func bruteAUC(pres []float64, bg []float64, w []float64) float64 {
+	num, den := 0.0, 0.0
+	for _, p := range pres {
+		for i, v := range bg {
+			switch {
+			case v < p:
+				num += w[i]
+			case v == p:
+				num += w[i] / 2
+			}
+			den += w[i]
+		}
+	}
+	return num / den
+}
+
+// readBands reads every band of a Byte GeoTIFF.
+func readBands(t *testing.T, path string) (names []string, bands [][]byte) {
+	t.Helper()
+	ds, err := godal.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ds.Close()
+	st := ds.Structure()
+	for _, b := range ds.Bands() {
+		buf := make([]byte, st.SizeX*st.SizeY)
+		if err := b.Read(0, 0, buf, st.SizeX, st.SizeY); err != nil {
+			t.Fatal(err)
+		}
+		names = append(names, b.Description())
+		bands = append(bands, buf)
+	}
+	return names, bands
+}
+
+func loadResults(t *testing.T, dir string) *report.Results {
+	t.Helper()
+	r, err := report.Load(filepath.Join(dir, "results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func (s *smallStudy) args(out string, extra ...string) []string {
+	a := []string{"run", "--model", "m=" + s.model, "--model", "sq=" + s.model2, "--occurrences", s.occ, "--region", s.region,
+		"--region-buffers=-40,60,150", "--point-buffers", "40,80", "--hull-buffers", "0,50", "--e", "0.05,0.2",
+		"--iterations", "50", "--seed", "9", "--membership-tif", "--quiet", "--out", out}
+	return append(a, extra...)
+}
+
+// TestRunAgainstBruteForce checks every extent's AUC, cell count, area and
+// the nested-ring mix against a brute-force computation from the raw cells.
+func TestRunAgainstBruteForce(t *testing.T) {
+	s := newSmallStudy(t)
+	out := filepath.Join(s.dir, "out")
+	_, se, code := runBin(t, s.args(out)...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	res := loadResults(t, out)
+	names, bands := readBands(t, filepath.Join(out, "extents.tif"))
+	if len(names) != len(res.Extents) {
+		t.Fatalf("extents.tif has %d bands, results %d extents", len(names), len(res.Extents))
+	}
+	// Scored test points' values.
+	var test []float64
+	for _, p := range res.Points {
+		if p.Role == "test" && p.Status == "scored" {
+			test = append(test, s.vals[p.Row*s.w+p.Col])
+		}
+	}
+	if res.PointCounts.OutsideRaster != 1 {
+		t.Errorf("outside_raster = %d, want 1 (the point at lon 30)", res.PointCounts.OutsideRaster)
+	}
+	areaRow := make([]float64, s.h)
+	for r := range areaRow {
+		top := 48 - float64(r)*0.25
+		areaRow[r] = cellAreaKm2(top-0.25, top, 0.25)
+	}
+	scores := map[string]report.Score{}
+	for _, sc := range res.Scores {
+		scores[sc.Model+"/"+sc.Extent] = sc
+	}
+	bgOf := func(band []byte) (vals, w []float64, inside func(r, c int) bool) {
+		for i, b := range band {
+			if b == 1 && !math.IsNaN(s.vals[i]) {
+				vals = append(vals, s.vals[i])
+				w = append(w, areaRow[i/s.w])
+			}
+		}
+		return vals, w, func(r, c int) bool { return band[r*s.w+c] == 1 }
+	}
+	for k, e := range res.Extents {
+		if names[k] != e.ID {
+			t.Fatalf("band %d is %q, extent %q", k, names[k], e.ID)
+		}
+		if e.Status != "ok" {
+			continue
+		}
+		vals, w, inside := bgOf(bands[k])
+		area := 0.0
+		for _, x := range w {
+			area += x
+		}
+		if int64(len(vals)) != e.Cells {
+			t.Errorf("%s: cells %d, brute force %d", e.ID, e.Cells, len(vals))
+		}
+		if math.Abs(area-e.AreaKm2) > 1e-9*area {
+			t.Errorf("%s: area %.6f km2, authalic-latitude formula %.6f", e.ID, e.AreaKm2, area)
+		}
+		var pres []float64
+		for _, p := range res.Points {
+			if p.Role == "test" && p.Status == "scored" && inside(p.Row, p.Col) {
+				pres = append(pres, s.vals[p.Row*s.w+p.Col])
+			}
+		}
+		sc := scores["m/"+e.ID]
+		if len(pres) == 0 {
+			if sc.Scored {
+				t.Errorf("%s: scored without test points", e.ID)
+			}
+			continue
+		}
+		want := bruteAUC(pres, vals, w)
+		if !sc.Scored || math.Abs(sc.AUC-want) > 1e-9 {
+			t.Errorf("%s: auc %.12f, brute force %.12f (scored %v %s)", e.ID, sc.AUC, want, sc.Scored, sc.NotScored)
+		}
+		ones := make([]float64, len(w))
+		for i := range ones {
+			ones[i] = 1
+		}
+		if wantU := bruteAUC(pres, vals, ones); math.Abs(sc.AUCUnweighted-wantU) > 1e-9 {
+			t.Errorf("%s: auc_unweighted %.12f, brute force %.12f", e.ID, sc.AUCUnweighted, wantU)
+		}
+		// Squaring keeps the ranking: same AUC and partial ROC (property).
+		sq := scores["sq/"+e.ID]
+		if math.Abs(sq.AUC-sc.AUC) > 1e-12 || math.Abs(sq.PartialROC[0].Ratio-sc.PartialROC[0].Ratio) > 1e-9 {
+			t.Errorf("%s: squared model auc %.12f / pROC %.9f, model %.12f / %.9f", e.ID, sq.AUC, sq.PartialROC[0].Ratio, sc.AUC, sc.PartialROC[0].Ratio)
+		}
+	}
+	// Rings: recompute the ring AUC from the raw cells of outer minus inner.
+	idx := map[string]int{}
+	for k, e := range res.Extents {
+		idx[e.ID] = k
+	}
+	if len(res.Rings) == 0 {
+		t.Fatal("no rings in results")
+	}
+	for _, rg := range res.Rings {
+		if rg.Model != "m" {
+			continue
+		}
+		in, outer := bands[idx[rg.Inner]], bands[idx[rg.Outer]]
+		ring := make([]byte, len(in))
+		for i := range ring {
+			if outer[i] == 1 && in[i] == 0 {
+				ring[i] = 1
+			}
+			if in[i] == 1 && outer[i] == 0 {
+				t.Fatalf("%s is not inside %s at cell %d", rg.Inner, rg.Outer, i)
+			}
+		}
+		vals, w, _ := bgOf(ring)
+		_, _, insideOuter := bgOf(outer)
+		var pres []float64
+		for _, p := range res.Points {
+			if p.Role == "test" && p.Status == "scored" && insideOuter(p.Row, p.Col) {
+				pres = append(pres, s.vals[p.Row*s.w+p.Col])
+			}
+		}
+		if len(vals) > 0 {
+			if want := bruteAUC(pres, vals, w); math.Abs(rg.AUCRing-want) > 1e-9 {
+				t.Errorf("ring %s-%s: auc %.12f, brute force %.12f", rg.Outer, rg.Inner, rg.AUCRing, want)
+			}
+		}
+		mix := (rg.InnerAreaKm2*rg.AUCInner + rg.RingAreaKm2*rg.AUCRing) / (rg.InnerAreaKm2 + rg.RingAreaKm2)
+		if math.Abs(mix-rg.AUCOuter) > 1e-9 {
+			t.Errorf("ring %s-%s: mix %.12f, outer %.12f", rg.Outer, rg.Inner, mix, rg.AUCOuter)
+		}
+	}
+	_ = test
+	for _, f := range []string{"results.json", "scores.csv", "extents.gpkg", "run.log", "omitted_points.gpkg"} {
+		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
+			t.Errorf("output %s missing: %v", f, err)
+		}
+	}
+}
+
+// TestRunReproducible checks byte-identical results.json on 1 and 2 cores.
+func TestRunReproducible(t *testing.T) {
+	s := newSmallStudy(t)
+	var got [][]byte
+	for _, w := range []string{"1", "2"} {
+		out := filepath.Join(s.dir, "out"+w)
+		if _, se, code := runBin(t, s.args(out, "--workers", w)...); code != 0 {
+			t.Fatalf("exit %d: %s", code, se)
+		}
+		b, err := os.ReadFile(filepath.Join(out, "results.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		got = append(got, b)
+	}
+	if !bytes.Equal(got[0], got[1]) {
+		t.Error("results.json differs between --workers 1 and --workers 2")
+	}
+	var any map[string]any
+	if err := json.Unmarshal(got[0], &any); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"schema_version", "settings", "inputs", "software", "seed", "extents", "scores"} {
+		if _, ok := any[k]; !ok {
+			t.Errorf("results.json lacks %q", k)
+		}
+	}
+}
+
+// TestRunErrors checks that bad input gives exit 2, a message naming the
+// problem, and no output directory.
+func TestRunErrors(t *testing.T) {
+	s := newSmallStudy(t)
+	noCRS := filepath.Join(s.dir, "nocrs.tif")
+	writeRaster(t, noCRS, s.w, s.h, s.gt, s.vals, false)
+	other := filepath.Join(s.dir, "other.tif")
+	writeRaster(t, other, s.w-1, s.h, s.gt, s.vals[:(s.w-1)*s.h], true)
+	write := func(name, body string) string {
+		p := filepath.Join(s.dir, name)
+		os.WriteFile(p, []byte(body), 0o644)
+		return p
+	}
+	noCoords := write("nocoords.csv", "a,b,role\n1,2,train\n")
+	badNum := write("badnum.csv", "lon,lat,role\n13,43,train\n13,abc,test\n")
+	badLat := write("badlat.csv", "lon,lat,role\n13,43,train\n13,95,test\n")
+	swapped := write("swapped.csv", "lon,lat,role\n43,13,train\n44,120,test\n")
+	notADir := write("notadir", "x")
+	base := func(out string) []string {
+		return []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "5", "--quiet", "--out", out}
+	}
+	cases := []struct {
+		name string
+		args []string
+		want string
+	}{
+		{"missing model file", []string{"run", "--model", "m=" + filepath.Join(s.dir, "nope.tif"), "--occurrences", s.occ, "--region", s.region}, "nope.tif does not exist"},
+		{"no CRS", []string{"run", "--model", "m=" + noCRS, "--occurrences", s.occ, "--region", s.region}, "no coordinate reference system"},
+		{"grids differ", []string{"run", "--model", "m=" + s.model, "--model", "o=" + other, "--occurrences", s.occ, "--region", s.region}, "size 48x32 vs 47x32"},
+		{"header without coordinates", []string{"run", "--model", "m=" + s.model, "--occurrences", noCoords, "--region", s.region}, "longitude"},
+		{"bad number", []string{"run", "--model", "m=" + s.model, "--occurrences", badNum, "--region", s.region}, "line 3"},
+		{"latitude out of range", []string{"run", "--model", "m=" + s.model, "--occurrences", badLat, "--region", s.region}, "95"},
+		{"swapped columns", []string{"run", "--model", "m=" + s.model, "--occurrences", swapped, "--region", s.region}, "swapped"},
+		{"region not overlapping", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.far}, "does not overlap"},
+		{"E outside (0,1)", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--e", "1.5"}, "outside (0,1)"},
+		{"iterations < 1", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "0"}, "--iterations is 0"},
+		{"out is a file", base(notADir), "not a directory"},
+		{"unknown flag", []string{"run", "--modle", "x"}, "unknown flag"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			args := c.args
+			out := filepath.Join(s.dir, "err-"+strings.ReplaceAll(c.name, " ", "_"))
+			if !contains(args, "--out") {
+				args = append(append([]string{}, args...), "--out", out, "--quiet")
+			}
+			_, se, code := runBin(t, args...)
+			if code != 2 {
+				t.Errorf("exit %d, want 2; stderr: %s", code, se)
+			}
+			if !strings.Contains(se, c.want) {
+				t.Errorf("stderr %q does not contain %q", se, c.want)
+			}
+			if _, err := os.Stat(out); err == nil && c.name != "out is a file" {
+				t.Errorf("%s was created despite the error", out)
+			}
+		})
+	}
+	// An existing non-empty output directory needs --force.
+	out := filepath.Join(s.dir, "exists")
+	os.MkdirAll(out, 0o755)
+	os.WriteFile(filepath.Join(out, "keep.txt"), []byte("mine"), 0o644)
+	_, se, code := runBin(t, base(out)...)
+	if code != 2 || !strings.Contains(se, "--force") {
+		t.Errorf("existing out: exit %d, stderr %q", code, se)
+	}
+	if b, _ := os.ReadFile(filepath.Join(out, "keep.txt")); string(b) != "mine" {
+		t.Error("existing out was touched without --force")
+	}
+	if _, se, code := runBin(t, append(base(out), "--force")...); code != 0 {
+		t.Fatalf("--force: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(filepath.Join(out, "keep.txt")); err == nil {
+		t.Error("--force kept the old directory's files")
+	}
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// TestNotScoredWithoutTestPoints: an extent holding no test point is
+// reported as not scored with the reason.
+func TestNotScoredWithoutTestPoints(t *testing.T) {
+	s := newSmallStudy(t)
+	corner := filepath.Join(s.dir, "corner.geojson")
+	os.WriteFile(corner, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[19,40.2],[21,40.2],[21,41.5],[19,41.5],[19,40.2]]]}}]}`), 0o644)
+	out := filepath.Join(s.dir, "out")
+	_, se, code := runBin(t, "run", "--model", "m="+s.model, "--occurrences", s.occ, "--region", s.region, "--extra", "corner="+corner,
+		"--iterations", "5", "--quiet", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	res := loadResults(t, out)
+	found := false
+	for _, sc := range res.Scores {
+		if sc.Extent == "user_corner" {
+			found = true
+			if sc.Scored || !strings.Contains(sc.NotScored, "no test points") {
+				t.Errorf("user_corner: scored=%v reason %q", sc.Scored, sc.NotScored)
+			}
+		}
+	}
+	if !found {
+		t.Error("no score entry for user_corner")
+	}
+}
+
+// TestDemo runs the built-in demo and checks the effect it exists to show:
+// full AUC of the good model rises from the base region to the largest
+// region buffer while omission at the minimum training presence threshold
+// does not change (it depends on training points only).
+func TestDemo(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "demo")
+	so, se, code := runBin(t, "demo", "--out", out, "--quiet")
+	if code != 0 {
+		t.Fatalf("demo exit %d: %s", code, se)
+	}
+	if !strings.Contains(so, "report.html") {
+		t.Errorf("demo did not print where the report is: %q", so)
+	}
+	res := loadResults(t, out)
+	get := func(model, ext string) report.Score {
+		for _, sc := range res.Scores {
+			if sc.Model == model && sc.Extent == ext {
+				return sc
+			}
+		}
+		t.Fatalf("no score %s/%s", model, ext)
+		return report.Score{}
+	}
+	b, w := get("good", "base"), get("good", "region_500km")
+	if !(w.AUC > b.AUC+0.03) {
+		t.Errorf("demo: AUC base %.4f, region_500km %.4f: the extent effect is not shown", b.AUC, w.AUC)
+	}
+	if b.Thresholds[0].Omission != w.Thresholds[0].Omission {
+		t.Errorf("demo: omission at MTP changed with the extent: %v vs %v", b.Thresholds[0].Omission, w.Thresholds[0].Omission)
+	}
+	for _, f := range []string{"inputs/study.yaml", "inputs/model_good.tif", "results.json", "report.html", "methods.md"} {
+		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
+			t.Errorf("demo output %s missing", f)
+		}
+	}
+	// Re-render from results.json.
+	if _, se, code := runBin(t, "report", out); code != 0 {
+		t.Errorf("report: exit %d: %s", code, se)
+	}
+}

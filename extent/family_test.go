@@ -1,0 +1,371 @@
+package extent
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"areasweep/extent/geodesy"
+)
+
+// geoGrid makes a latitude-longitude grid with every cell valid.
+func geoGrid(t *testing.T, west, north, step float64, w, h int) (*Grid, Valid) {
+	t.Helper()
+	g, err := NewGrid(w, h, [6]float64{west, step, 0, north, 0, -step}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := NewValid(w * h)
+	for i := 0; i < w*h; i++ {
+		v.Set(i)
+	}
+	return g, v
+}
+
+// writeGeoJSON writes polygons (lon/lat rings) as a GeoJSON file with an
+// "id" property per feature.
+func writeGeoJSON(t *testing.T, dir, name string, ids []string, rings [][][2]float64) string {
+	t.Helper()
+	var feats []string
+	for i, r := range rings {
+		var pts []string
+		for _, p := range r {
+			pts = append(pts, fmt.Sprintf("[%g,%g]", p[0], p[1]))
+		}
+		feats = append(feats, fmt.Sprintf(`{"type":"Feature","properties":{"id":"%s"},"geometry":{"type":"Polygon","coordinates":[[%s]]}}`, ids[i], strings.Join(pts, ",")))
+	}
+	path := filepath.Join(dir, name)
+	body := `{"type":"FeatureCollection","features":[` + strings.Join(feats, ",") + `]}`
+	if err := os.WriteFile(path, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+func memberIdx(t *testing.T, f *Family, id string) int {
+	t.Helper()
+	for k, m := range f.Members {
+		if m.ID == id {
+			return k
+		}
+	}
+	t.Fatalf("no member %q", id)
+	return -1
+}
+
+// densifyRing returns points along a ring's geodesic edges every step
+// metres.
+func densifyRing(ring [][2]float64, step float64) (lats, lons []float64) {
+	for i := 1; i < len(ring); i++ {
+		la, lo := geodesy.Densify(ring[i-1][1], ring[i-1][0], ring[i][1], ring[i][0], step)
+		lats, lons = append(lats, la...), append(lons, lo...)
+	}
+	return lats, lons
+}
+
+// bruteBoundaryKm is the geodesic distance (PROJ's geod_inverse, Karney
+// 2013) from a point to the densified boundary, by trying every boundary
+// point: the reference the buffer membership is checked against.
+func bruteBoundaryKm(lon, lat float64, lats, lons []float64) float64 {
+	best := math.Inf(1)
+	for k := range lats {
+		best = math.Min(best, geodesy.Distance(lat, lon, lats[k], lons[k]))
+	}
+	return best / 1000
+}
+
+// TestRegionBufferMembership checks grown and shrunk region members against
+// brute-force geodesic distance on every cell: each cell whose centre is
+// farther than half a cell diagonal from the buffer edge must be classified
+// correctly (acceptance rule of the extent family).
+func TestRegionBufferMembership(t *testing.T) {
+	dir := t.TempDir()
+	// A non-convex region at mid-latitude, where a degree of longitude is
+	// ~71 km and of latitude ~111 km, so planar buffers in degrees would fail.
+	ring := [][2]float64{{4, 44}, {10, 44}, {10, 48}, {7, 46.5}, {4, 48}, {4, 44}}
+	region := writeGeoJSON(t, dir, "region.geojson", []string{"r"}, [][][2]float64{ring})
+	g, v := geoGrid(t, 0, 52, 0.2, 70, 60)
+	f, err := Build(g, v, Spec{Region: region, RegionBuffersKm: []float64{-40, 60, 150}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := memberIdx(t, f, "base")
+	type bufCase struct {
+		id string
+		d  float64
+	}
+	cases := []bufCase{{"region_minus40km", -40}, {"region_60km", 60}, {"region_150km", 150}}
+	// Half a cell diagonal at this latitude (upper bound over the grid).
+	halfDiag := 0.5 * math.Hypot(0.2*111.3, 0.2*111.3*math.Cos(44*math.Pi/180))
+	// Boundary every 2 km: the nearest boundary point is then at most 1 km
+	// farther than the boundary itself, far below the half-diagonal margin.
+	blats, blons := densifyRing(ring, 2000)
+	checked := 0
+	for row := 0; row < g.Height; row++ {
+		for col := row % 2; col < g.Width; col += 2 {
+			i := row*g.Width + col
+			lon, lat := g.Centre(col, row)
+			inside := f.Mask[i]>>uint(base)&1 == 1
+			dist := bruteBoundaryKm(lon, lat, blats, blons)
+			for _, c := range cases {
+				k := memberIdx(t, f, c.id)
+				got := f.Mask[i]>>uint(k)&1 == 1
+				var edge float64 // signed distance of the centre from the buffer edge
+				var want bool
+				if c.d > 0 {
+					want = inside || dist <= c.d
+					edge = dist - c.d
+					if inside {
+						edge = -math.Inf(1)
+					}
+				} else {
+					want = inside && dist > -c.d
+					edge = dist + c.d
+					if !inside {
+						edge = math.Inf(1)
+					}
+				}
+				if math.Abs(edge) <= halfDiag {
+					continue
+				}
+				checked++
+				if got != want {
+					t.Fatalf("%s: cell (%d,%d) at lon %.2f lat %.2f, %.1f km from the boundary (inside %v): member %v, want %v", c.id, col, row, lon, lat, dist, inside, got, want)
+				}
+			}
+		}
+	}
+	if checked < 2500 {
+		t.Errorf("only %d cell checks far from an edge", checked)
+	}
+	if got := f.Chain("region"); len(got) != 5 {
+		t.Errorf("region chain %v, want 5 members (minus40, base, 60, 150, whole)", got)
+	}
+}
+
+// TestPointBuffers checks disc unions against brute-force geodesic
+// distance to the nearest point, across the antimeridian (the grid runs
+// from 170 E to 170 W).
+func TestPointBuffers(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{175, -40}, {185, -40}, {185, -35}, {175, -35}, {175, -40}}})
+	g, v := geoGrid(t, 170, -30, 0.25, 80, 60)
+	pts := []LonLat{{178.5, -37}, {-178.8, -38.2}, {179.9, -42}}
+	f, err := Build(g, v, Spec{Region: region, Train: pts, PointBuffersKm: []float64{75, 150}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	halfDiag := 0.5 * math.Hypot(0.25*111.3, 0.25*111.3)
+	for _, d := range []float64{75, 150} {
+		k := memberIdx(t, f, fmt.Sprintf("points_%gkm", d))
+		for row := 0; row < g.Height; row++ {
+			for col := 0; col < g.Width; col++ {
+				lon, lat := g.Centre(col, row)
+				best := math.Inf(1)
+				for _, p := range pts {
+					best = math.Min(best, geodesy.Distance(lat, lon, p.Lat, p.Lon)/1000)
+				}
+				if math.Abs(best-d) <= halfDiag {
+					continue
+				}
+				got := f.Mask[row*g.Width+col]>>uint(k)&1 == 1
+				if got != (best <= d) {
+					t.Fatalf("points_%gkm: cell lon %.3f lat %.3f at %.1f km: member %v", d, lon, lat, best, got)
+				}
+			}
+		}
+	}
+}
+
+// TestHullAcrossAntimeridian: a hull of points on both sides of 180 degrees
+// must be the narrow hull across the antimeridian, not one spanning 356
+// degrees of raw longitude.
+func TestHullAcrossAntimeridian(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{175, -40}, {185, -40}, {185, -35}, {175, -35}, {175, -40}}})
+	g, v := geoGrid(t, 170, -30, 0.25, 80, 60)
+	// A square of side 4 degrees centred on 180 E, 38 S, plus interior points.
+	pts := []LonLat{{178, -36}, {-178, -36}, {-178, -40}, {178, -40}, {179, -38}, {-179.5, -37}}
+	f, err := Build(g, v, Spec{Region: region, Train: pts, HullBuffersKm: []float64{0, 100}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := memberIdx(t, f, "hull")
+	for row := 0; row < g.Height; row++ {
+		for col := 0; col < g.Width; col++ {
+			lon, lat := g.Centre(col, row)
+			// Great-circle edges bow from the parallels by well under 0.1
+			// degree here; test only cells at least 0.3 degree from an edge.
+			dl := math.Min(math.Abs(lon-178), math.Abs(lon-182))
+			dp := math.Min(math.Abs(lat+36), math.Abs(lat+40))
+			if dl < 0.3 || dp < 0.3 {
+				continue
+			}
+			want := lon > 178 && lon < 182 && lat < -36 && lat > -40
+			if got := f.Mask[row*g.Width+col]>>uint(k)&1 == 1; got != want {
+				t.Fatalf("hull: cell lon %.3f lat %.3f member %v want %v", lon, lat, got, want)
+			}
+		}
+	}
+	hb := memberIdx(t, f, "hull_100km")
+	if f.Members[hb].Cells <= f.Members[k].Cells {
+		t.Errorf("hull_100km has %d cells, hull %d", f.Members[hb].Cells, f.Members[k].Cells)
+	}
+}
+
+// TestEcoregionSelection uses four unit squares in a row, A B C D, with two
+// training points in A and one in C: a constructed layer with known answers.
+func TestEcoregionSelection(t *testing.T) {
+	dir := t.TempDir()
+	sq := func(x0 float64) [][2]float64 {
+		return [][2]float64{{x0, 10}, {x0 + 2, 10}, {x0 + 2, 12}, {x0, 12}, {x0, 10}}
+	}
+	units := writeGeoJSON(t, dir, "units.geojson", []string{"A", "B", "C", "D"}, [][][2]float64{sq(0), sq(2), sq(4), sq(6)})
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{0.5, 10.5}, {4.5, 10.5}, {4.5, 11.5}, {0.5, 11.5}, {0.5, 10.5}}})
+	g, v := geoGrid(t, 0, 12, 0.1, 80, 20)
+	train := []LonLat{{0.5, 11}, {1.5, 11.2}, {5.1, 10.9}}
+	cases := []struct {
+		k                int
+		selected, plus   string // unit letters
+		cells, plusCells int64
+	}{
+		{1, "AC", "ABCD", 800, 1600},
+		{2, "A", "AB", 400, 800},
+	}
+	for _, c := range cases {
+		t.Run(fmt.Sprintf("k=%d", c.k), func(t *testing.T) {
+			f, err := Build(g, v, Spec{Region: region, Train: train, Ecoregions: units, EcoregionField: "id", EcoregionMinPoints: c.k, EcoregionClip: true}, nil, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sel := f.Members[memberIdx(t, f, fmt.Sprintf("ecoregions_k%d", c.k))]
+			plus := f.Members[memberIdx(t, f, fmt.Sprintf("ecoregions_k%d_touching", c.k))]
+			if sel.Cells != c.cells || plus.Cells != c.plusCells {
+				t.Errorf("cells %d and %d, want %d (%s) and %d (%s)", sel.Cells, plus.Cells, c.cells, c.selected, c.plusCells, c.plus)
+			}
+			clip := f.Members[memberIdx(t, f, fmt.Sprintf("ecoregions_k%d_clipped", c.k))]
+			base := f.Members[memberIdx(t, f, "base")]
+			if clip.Cells > base.Cells || clip.Cells == 0 {
+				t.Errorf("clipped member has %d cells, base %d", clip.Cells, base.Cells)
+			}
+		})
+	}
+}
+
+// TestEmptyAndDuplicateMembers: a user polygon equal to the base is a
+// duplicate and one off the grid is empty; both are reported, not dropped.
+func TestEmptyAndDuplicateMembers(t *testing.T) {
+	dir := t.TempDir()
+	ring := [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}}
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, ring)
+	same := writeGeoJSON(t, dir, "same.geojson", []string{"s"}, ring)
+	off := writeGeoJSON(t, dir, "off.geojson", []string{"o"}, [][][2]float64{{{50, 50}, {51, 50}, {51, 51}, {50, 51}, {50, 50}}})
+	g, v := geoGrid(t, 0, 4, 0.1, 40, 40)
+	f, err := Build(g, v, Spec{Region: region, Extra: []Named{{"same", same}, {"off", off}}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != StatusDuplicate || m.DuplicateOf != "base" {
+		t.Errorf("user_same: status %s of %q", m.Status, m.DuplicateOf)
+	}
+	if m := f.Members[memberIdx(t, f, "user_off")]; m.Status != StatusEmpty {
+		t.Errorf("user_off: status %s", m.Status)
+	}
+	if n := f.Members[memberIdx(t, f, "base")].Cells; n != 400 {
+		t.Errorf("base has %d cells, want 400 (20 x 20 cells of 0.1 degree)", n)
+	}
+}
+
+// TestGlobalGridArea: the exact cell areas of a global 1-degree grid sum to
+// the area of the WGS84 ellipsoid, 2 pi a^2 (1 + (1-e^2)/e atanh e)
+// (closed form for an oblate ellipsoid of revolution, e.g. Snyder 1987),
+// to 1e-9 relative.
+func TestGlobalGridArea(t *testing.T) {
+	g, _ := geoGrid(t, -180, 90, 1, 360, 180)
+	sum := 0.0
+	row := make([]float64, g.Width)
+	for r := 0; r < g.Height; r++ {
+		for _, a := range g.RowAreas(r, row) {
+			sum += a
+		}
+	}
+	a := 6378.137
+	f := 1 / 298.257223563
+	e2 := f * (2 - f)
+	e := math.Sqrt(e2)
+	want := 2 * math.Pi * a * a * (1 + (1-e2)/e*math.Atanh(e))
+	if math.Abs(sum-want)/want > 1e-9 {
+		t.Errorf("sum of cell areas %.3f km2, ellipsoid %.3f km2", sum, want)
+	}
+}
+
+// TestWebMercatorCellArea: a cell of an EPSG:3857 grid is a latitude-
+// longitude quadrangle (lat = atan(sinh(y/a)), lon = x/a, the inverse of
+// the spherical Mercator formulas EPSG:3857 defines), so its true area is
+// the ellipsoidal quadrangle area. The grid's block-factor method must
+// agree to 0.1% (the cell's straight edges are densified only at four
+// points per side).
+func TestWebMercatorCellArea(t *testing.T) {
+	const a = 6378137.0
+	size := 20000.0
+	y0 := 5.5e6 // ~ 44 degrees N
+	g, err := NewGrid(10, 10, [6]float64{0, size, 0, y0, 0, -size}, "EPSG:3857")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g.EqualArea {
+		t.Fatal("EPSG:3857 is not equal-area")
+	}
+	row := g.RowAreas(3, nil)
+	top, bot := y0-3*size, y0-4*size
+	lat := func(y float64) float64 { return math.Atan(math.Sinh(y/a)) * 180 / math.Pi }
+	want := geodesy.CellArea(lat(bot), lat(top), size/a*180/math.Pi) / 1e6
+	if math.Abs(row[0]-want)/want > 1e-3 {
+		t.Errorf("cell area %.6f km2, quadrangle %.6f km2", row[0], want)
+	}
+	planar := size * size / 1e6
+	if row[0] > planar*0.6 {
+		t.Errorf("cell area %.3f km2 is close to the planar %.3f km2: scale factor not applied", row[0], planar)
+	}
+}
+
+// TestFillMatchesContains: scanline filling and the point test agree on
+// every cell centre of a polygon with a hole (same half-open rule).
+func TestFillMatchesContains(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "hole.geojson")
+	os.WriteFile(path, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.05,0.05],[3.95,0.3],[3.6,3.9],[0.2,3.7],[0.05,0.05]],[[1,1],[2,1],[2,2],[1,2],[1,1]]]}}]}`), 0o644)
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	s, _, err := ReadShape(path, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	filled := make([]bool, g.Cells())
+	Fill(g, s.Grid, func(row, c0, c1 int) {
+		for c := c0; c < c1; c++ {
+			filled[row*g.Width+c] = true
+		}
+	})
+	n := 0
+	for row := 0; row < g.Height; row++ {
+		for col := 0; col < g.Width; col++ {
+			x, y := g.Centre(col, row)
+			if Contains(g, s.Grid, x, y) != filled[row*g.Width+col] {
+				t.Fatalf("cell (%d,%d): Fill and Contains disagree", col, row)
+			}
+			if filled[row*g.Width+col] {
+				n++
+			}
+		}
+	}
+	// The 10 x 10 cells of the hole are out; the hole's centre cell is out.
+	if x, y := g.Centre(15, 25); Contains(g, s.Grid, x, y) {
+		t.Error("cell in the hole is inside")
+	}
+	if n == 0 || n > 1500 {
+		t.Errorf("%d cells filled", n)
+	}
+}

@@ -1,0 +1,575 @@
+package report
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+const sampleDir = "../testdata/report"
+
+// loadSample reads testdata/report/sample_results.json (made by
+// gen_sample.py from synthetic raw cells with numpy/scipy).
+func loadSample(t testing.TB) *Results {
+	t.Helper()
+	r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func analyzedSample(t testing.TB) *Results {
+	t.Helper()
+	r := loadSample(t)
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// golden mirrors golden.json written by testdata/report/golden.py.
+type golden struct {
+	Spreads []struct {
+		Metric, Model         string
+		N                     int
+		Extents               []string
+		Min, Max, Range, Mean float64
+		MinExtent             string `json:"min_extent"`
+		MaxExtent             string `json:"max_extent"`
+		SD                    float64
+		SDDefined             bool    `json:"sd_defined"`
+		BootSDMedian          float64 `json:"boot_sd_median"`
+		BootSDDefined         bool    `json:"boot_sd_defined"`
+		RangeOverBootSD       float64 `json:"range_over_boot_sd"`
+		Verdict               string
+		Slope                 *struct {
+			PerDoubling float64 `json:"per_doubling"`
+			Intercept   float64
+			StdErr      float64 `json:"std_err"`
+			TQuantile   float64 `json:"t_quantile"`
+			CILow       float64 `json:"ci_low"`
+			CIHigh      float64 `json:"ci_high"`
+			R2          float64 `json:"r2"`
+		}
+	}
+	Decompositions []struct {
+		Metric          string
+		Extents         []string
+		GrandMean       float64 `json:"grand_mean"`
+		SSTotal         float64 `json:"ss_total"`
+		SSExtent        float64 `json:"ss_extent"`
+		SSModel         float64 `json:"ss_model"`
+		SSResidual      float64 `json:"ss_residual"`
+		ShareExtent     float64 `json:"share_extent"`
+		ShareModel      float64 `json:"share_model"`
+		ShareResidual   float64 `json:"share_residual"`
+		Ranks           [][]float64
+		BaseExtent      string   `json:"base_extent"`
+		DiffersFromBase []string `json:"differs_from_base"`
+		KendallW        float64  `json:"kendall_w"`
+		ChiSquare       float64  `json:"chi_square"`
+		DF              int
+		PValue          float64 `json:"p_value"`
+	}
+	Chains []struct {
+		Chain, Model string
+		Members      []string
+		StartAUC     float64 `json:"start_auc"`
+		EndAUC       float64 `json:"end_auc"`
+		Change       float64
+		Steps        []struct {
+			Kind, Outer string
+			Change      float64
+			Share       float64
+			MixResidual float64 `json:"mix_residual"`
+		}
+	}
+	Truncation []struct {
+		Model     string
+		FloorFlag bool `json:"floor_flag"`
+		Flag      bool
+		Tails     []struct {
+			Extent string
+			Jump   float64
+			YFrom  float64 `json:"y_from"`
+		}
+	}
+	Independence struct {
+		N                        int
+		Min, Q1, Median, Q3, Max float64
+		CellWidthKm              float64 `json:"cell_width_km"`
+		NearKm                   float64 `json:"near_km"`
+		NearShare                float64 `json:"near_share"`
+		Warn                     bool
+	}
+	Omitted []struct {
+		Model, Threshold string
+		Count            int
+		Share            float64
+		IDs              []int
+	}
+}
+
+func loadGolden(t *testing.T) *golden {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join(sampleDir, "golden.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g golden
+	if err := json.Unmarshal(data, &g); err != nil {
+		t.Fatal(err)
+	}
+	// The independence quartiles are stored under *_km keys.
+	var raw struct {
+		Independence map[string]float64 `json:"independence"`
+	}
+	_ = json.Unmarshal(data, &raw)
+	g.Independence.Min = raw.Independence["min_km"]
+	g.Independence.Q1 = raw.Independence["q1_km"]
+	g.Independence.Median = raw.Independence["median_km"]
+	g.Independence.Q3 = raw.Independence["q3_km"]
+	g.Independence.Max = raw.Independence["max_km"]
+	return &g
+}
+
+func near(t *testing.T, what string, got, want, tol float64) {
+	t.Helper()
+	if math.Abs(got-want) > tol*math.Max(1, math.Abs(want)) {
+		t.Errorf("%s = %.15g, want %.15g (golden.py)", what, got, want)
+	}
+}
+
+// TestSpreadsAgainstGolden checks min/max/range/SD/median bootstrap SD and
+// the log2-area slope with its t-based CI against numpy + scipy.stats
+// (linregress, t.ppf) in golden.py.
+func TestSpreadsAgainstGolden(t *testing.T) {
+	r := analyzedSample(t)
+	g := loadGolden(t)
+	s := r.Sensitivity
+	if len(s.Spreads) != len(g.Spreads) {
+		t.Fatalf("got %d spreads, golden.py has %d", len(s.Spreads), len(g.Spreads))
+	}
+	for i, w := range g.Spreads {
+		got := s.Spreads[i]
+		name := w.Metric + "/" + w.Model
+		t.Run(name, func(t *testing.T) {
+			if got.Metric != w.Metric || got.Model != w.Model {
+				t.Fatalf("spread %d is %s/%s, golden %s", i, got.Metric, got.Model, name)
+			}
+			if got.N != w.N || !reflect.DeepEqual(got.Extents, w.Extents) {
+				t.Fatalf("extents %v, golden %v", got.Extents, w.Extents)
+			}
+			near(t, "min", got.Min, w.Min, 1e-12)
+			near(t, "max", got.Max, w.Max, 1e-12)
+			near(t, "range", got.Range, w.Range, 1e-12)
+			near(t, "mean", got.Mean, w.Mean, 1e-12)
+			near(t, "sd (ddof=1)", got.SD, w.SD, 1e-10)
+			if got.MinExtent != w.MinExtent || got.MaxExtent != w.MaxExtent {
+				t.Errorf("argmin/argmax %s/%s, golden %s/%s", got.MinExtent, got.MaxExtent, w.MinExtent, w.MaxExtent)
+			}
+			if got.SDDefined != w.SDDefined || got.BootSDDefined != w.BootSDDefined {
+				t.Errorf("defined flags sd=%v boot=%v, golden %v %v", got.SDDefined, got.BootSDDefined, w.SDDefined, w.BootSDDefined)
+			}
+			near(t, "median boot sd", got.BootSDMedian, w.BootSDMedian, 1e-12)
+			near(t, "range/median boot sd", got.RangeOverBootSD, w.RangeOverBootSD, 1e-10)
+			if got.Verdict != w.Verdict {
+				t.Errorf("verdict %s, golden %s", got.Verdict, w.Verdict)
+			}
+			if w.Slope == nil {
+				if got.Slope.CIDefined {
+					t.Errorf("slope CI defined with n=%d", got.N)
+				}
+				return
+			}
+			if !got.Slope.Defined || !got.Slope.CIDefined {
+				t.Fatalf("slope undefined: %+v", got.Slope)
+			}
+			if !got.Slope.R2Defined {
+				// r^2 is 0/0 for a constant metric; linregress returns r = 0 there.
+				if got.Range != 0 || w.Slope.R2 != 0 {
+					t.Errorf("r^2 undefined on a varying metric (golden r^2 %v)", w.Slope.R2)
+				}
+				w.Slope.R2 = 0
+			}
+			near(t, "slope (linregress)", got.Slope.PerDoubling, w.Slope.PerDoubling, 1e-9)
+			near(t, "intercept", got.Slope.Intercept, w.Slope.Intercept, 1e-9)
+			near(t, "stderr", got.Slope.StdErr, w.Slope.StdErr, 1e-9)
+			near(t, "t.ppf(0.975, n-2)", got.Slope.TQuantile, w.Slope.TQuantile, 1e-9)
+			near(t, "ci low", got.Slope.CILow, w.Slope.CILow, 1e-9)
+			near(t, "ci high", got.Slope.CIHigh, w.Slope.CIHigh, 1e-9)
+			near(t, "r^2", got.Slope.R2, w.Slope.R2, 1e-9)
+		})
+	}
+}
+
+// TestDecompositionsAgainstGolden checks the two-way SS split, the ranks,
+// Kendall's W (explicit formula with ties in golden.py, ranks from
+// scipy.stats.rankdata) and its chi-square p-value (scipy.stats.chi2.sf).
+func TestDecompositionsAgainstGolden(t *testing.T) {
+	r := analyzedSample(t)
+	g := loadGolden(t)
+	s := r.Sensitivity
+	if len(s.Decompositions) != len(g.Decompositions) {
+		t.Fatalf("got %d decompositions, golden.py has %d", len(s.Decompositions), len(g.Decompositions))
+	}
+	for i, w := range g.Decompositions {
+		d := s.Decompositions[i]
+		t.Run(w.Metric, func(t *testing.T) {
+			if d.Metric != w.Metric || !reflect.DeepEqual(d.Extents, w.Extents) {
+				t.Fatalf("%s on %v, golden %s on %v", d.Metric, d.Extents, w.Metric, w.Extents)
+			}
+			if !d.Defined {
+				t.Fatalf("undefined: %s", d.Note)
+			}
+			near(t, "grand mean", d.GrandMean, w.GrandMean, 1e-12)
+			near(t, "SS total", d.SSTotal, w.SSTotal, 1e-9)
+			near(t, "SS extent", d.SSExtent, w.SSExtent, 1e-9)
+			near(t, "SS model", d.SSModel, w.SSModel, 1e-9)
+			near(t, "SS residual", d.SSResidual, w.SSResidual, 1e-9)
+			near(t, "share extent", d.ShareExtent, w.ShareExtent, 1e-9)
+			near(t, "share model", d.ShareModel, w.ShareModel, 1e-9)
+			near(t, "share residual", d.ShareResidual, w.ShareResidual, 1e-9)
+			near(t, "shares sum", d.ShareExtent+d.ShareModel+d.ShareResidual, 1, 1e-12)
+			for j, er := range d.Rankings {
+				if !reflect.DeepEqual(er.Ranks, w.Ranks[j]) {
+					t.Errorf("ranks on %s = %v, rankdata gives %v", er.Extent, er.Ranks, w.Ranks[j])
+				}
+			}
+			if d.BaseExtent != w.BaseExtent {
+				t.Errorf("base %s, golden %s", d.BaseExtent, w.BaseExtent)
+			}
+			if !reflect.DeepEqual(d.DiffersFromBase, w.DiffersFromBase) {
+				t.Errorf("differs from base %v, golden %v", d.DiffersFromBase, w.DiffersFromBase)
+			}
+			if !d.KendallWDefined {
+				t.Fatal("W undefined")
+			}
+			near(t, "Kendall's W", d.KendallW, w.KendallW, 1e-12)
+			near(t, "chi-square", d.ChiSquare, w.ChiSquare, 1e-10)
+			near(t, "p (chi2.sf)", d.PValue, w.PValue, 1e-9)
+			if d.DF != w.DF {
+				t.Errorf("df %d, golden %d", d.DF, w.DF)
+			}
+		})
+	}
+}
+
+// TestChainsAgainstGolden checks the chain steps and shares, that shares
+// sum to 1, and that each ring's AUCOuter equals the area-weighted mix of
+// inner and ring AUCs to 1e-12 on the sample (gen_sample.py computes the
+// three AUCs separately from raw cells).
+func TestChainsAgainstGolden(t *testing.T) {
+	r := analyzedSample(t)
+	g := loadGolden(t)
+	s := r.Sensitivity
+	if len(s.Chains) != len(g.Chains) {
+		t.Fatalf("got %d chains, golden.py has %d", len(s.Chains), len(g.Chains))
+	}
+	for i, w := range g.Chains {
+		cs := s.Chains[i]
+		t.Run(w.Chain+"/"+w.Model, func(t *testing.T) {
+			if !reflect.DeepEqual(cs.Members, w.Members) {
+				t.Fatalf("members %v, golden %v", cs.Members, w.Members)
+			}
+			near(t, "start", cs.StartAUC, w.StartAUC, 1e-12)
+			near(t, "end", cs.EndAUC, w.EndAUC, 1e-12)
+			near(t, "change", cs.Change, w.Change, 1e-12)
+			if len(cs.Steps) != len(w.Steps) {
+				t.Fatalf("%d steps, golden %d", len(cs.Steps), len(w.Steps))
+			}
+			var sum float64
+			for k, st := range cs.Steps {
+				ws := w.Steps[k]
+				if st.Kind != ws.Kind || st.Outer != ws.Outer {
+					t.Errorf("step %d %s/%s, golden %s/%s", k, st.Kind, st.Outer, ws.Kind, ws.Outer)
+				}
+				near(t, "step change", st.Change, ws.Change, 1e-12)
+				near(t, "step share", st.Share, ws.Share, 1e-10)
+				if math.Abs(st.MixResidual) > 1e-12 {
+					t.Errorf("ring %s: AUCOuter - mix = %g, want |.| <= 1e-12", st.Outer, st.MixResidual)
+				}
+				sum += st.Share
+			}
+			near(t, "sum of shares", sum, 1, 1e-12)
+			if !cs.SharesDefined || cs.Largest < 0 || cs.Sentence == "" {
+				t.Errorf("summary incomplete: %+v", cs)
+			}
+		})
+	}
+	// The mix identity straight from the rings.
+	for _, rg := range r.Rings {
+		mix := (rg.InnerAreaKm2*rg.AUCInner + rg.RingAreaKm2*rg.AUCRing) / (rg.InnerAreaKm2 + rg.RingAreaKm2)
+		if math.Abs(mix-rg.AUCOuter) > 1e-12 {
+			t.Errorf("ring %s/%s %s-%s: mix %.15f, AUCOuter %.15f", rg.Chain, rg.Model, rg.Inner, rg.Outer, mix, rg.AUCOuter)
+		}
+	}
+}
+
+// TestChecksAgainstGolden checks truncation flags, the independence
+// quartiles (numpy.percentile, linear) and the omitted points.
+func TestChecksAgainstGolden(t *testing.T) {
+	r := analyzedSample(t)
+	g := loadGolden(t)
+	s := r.Sensitivity
+	if len(s.Truncation) != len(g.Truncation) {
+		t.Fatalf("%d truncation checks, golden %d", len(s.Truncation), len(g.Truncation))
+	}
+	for i, w := range g.Truncation {
+		tc := s.Truncation[i]
+		if tc.Model != w.Model || tc.FloorFlag != w.FloorFlag || tc.Flag != w.Flag || len(tc.Tails) != len(w.Tails) {
+			t.Errorf("truncation %s: floor=%v flag=%v tails=%d, golden %v %v %d", tc.Model, tc.FloorFlag, tc.Flag, len(tc.Tails), w.FloorFlag, w.Flag, len(w.Tails))
+			continue
+		}
+		for k, tj := range tc.Tails {
+			if tj.Extent != w.Tails[k].Extent {
+				t.Errorf("tail %d extent %s, golden %s", k, tj.Extent, w.Tails[k].Extent)
+			}
+			near(t, "tail jump", tj.Jump, w.Tails[k].Jump, 1e-12)
+			near(t, "tail y", tj.YFrom, w.Tails[k].YFrom, 1e-12)
+		}
+	}
+	ind, wi := s.Independence, g.Independence
+	if !ind.Defined || ind.N != wi.N || ind.Warn != wi.Warn {
+		t.Errorf("independence defined=%v n=%d warn=%v, golden n=%d warn=%v", ind.Defined, ind.N, ind.Warn, wi.N, wi.Warn)
+	}
+	near(t, "min", ind.Min, wi.Min, 1e-12)
+	near(t, "q1", ind.Q1, wi.Q1, 1e-12)
+	near(t, "median", ind.Median, wi.Median, 1e-12)
+	near(t, "q3", ind.Q3, wi.Q3, 1e-12)
+	near(t, "max", ind.Max, wi.Max, 1e-12)
+	near(t, "cell width", ind.CellWidthKm, wi.CellWidthKm, 1e-12)
+	near(t, "near km", ind.NearKm, wi.NearKm, 1e-12)
+	near(t, "near share", ind.NearShare, wi.NearShare, 1e-12)
+	if len(s.OmittedPoints) != len(g.Omitted) {
+		t.Fatalf("%d omitted lists, golden %d", len(s.OmittedPoints), len(g.Omitted))
+	}
+	for i, w := range g.Omitted {
+		o := s.OmittedPoints[i]
+		if o.Model != w.Model || o.Threshold != w.Threshold || o.Count != w.Count || !reflect.DeepEqual(o.IDs, nonNil(w.IDs)) {
+			t.Errorf("omitted %s/%s: %d %v, golden %d %v", o.Model, o.Threshold, o.Count, o.IDs, w.Count, w.IDs)
+		}
+		near(t, "omitted share", o.Share, w.Share, 1e-12)
+	}
+}
+
+func nonNil(x []int) []int {
+	if x == nil {
+		return []int{}
+	}
+	return x
+}
+
+// TestStatsWorkedExamples checks the helpers on hand-computable cases.
+func TestStatsWorkedExamples(t *testing.T) {
+	// Kendall's W without ties, 3 judges x 3 objects in perfect agreement:
+	// W = 1 (definition). Reversed second judge: R = (5, 6, 7), S = 2,
+	// W = 12*2 / (9*24) = 1/9 (hand computation).
+	cases := []struct {
+		name  string
+		ranks [][]float64
+		ties  []float64
+		want  float64
+	}{
+		{"agreement", [][]float64{{1, 2, 3}, {1, 2, 3}, {1, 2, 3}}, []float64{0, 0, 0}, 1},
+		{"one reversed", [][]float64{{1, 2, 3}, {3, 2, 1}, {1, 2, 3}}, []float64{0, 0, 0}, 1.0 / 9},
+		// Ties: judge 3 ties objects 1 and 2 (ranks 1.5, 1.5, 3), T_3 = 2^3-2 = 6.
+		// R = (3.5, 5.5, 9), mean 6, S = 6.25+0.25+9 = 15.5,
+		// W = 12*15.5 / (9*24 - 3*6) = 186/198 (hand computation).
+		{"ties", [][]float64{{1, 2, 3}, {1, 2, 3}, {1.5, 1.5, 3}}, []float64{0, 0, 6}, 186.0 / 198},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			w, _, _, _, ok := kendallW(c.ranks, c.ties)
+			if !ok || math.Abs(w-c.want) > 1e-12 {
+				t.Errorf("W = %v (ok=%v), want %v", w, ok, c.want)
+			}
+		})
+	}
+	r, tie := averageRanks([]float64{0.9, 0.7, 0.9, 0.5}, true)
+	if !reflect.DeepEqual(r, []float64{1.5, 3, 1.5, 4}) || tie != 6 {
+		t.Errorf("averageRanks = %v tie %v, want [1.5 3 1.5 4] tie 6 (hand computation)", r, tie)
+	}
+	// Hyndman & Fan type 7 on 1..5: Q(0.25) = 2, Q(0.1) = 1.4 (hand computation).
+	xs := []float64{1, 2, 3, 4, 5}
+	if q := quantile7(xs, 0.25); q != 2 {
+		t.Errorf("Q(0.25) = %v, want 2", q)
+	}
+	if q := quantile7(xs, 0.1); math.Abs(q-1.4) > 1e-12 {
+		t.Errorf("Q(0.1) = %v, want 1.4", q)
+	}
+	// OLS through (0,1), (1,3), (2,5): slope 2 exactly, r^2 = 1.
+	f, ok := ols([]float64{0, 1, 2}, []float64{1, 3, 5})
+	if !ok || math.Abs(f.b-2) > 1e-12 || math.Abs(f.a-1) > 1e-12 || math.Abs(f.r2-1) > 1e-12 {
+		t.Errorf("ols = %+v", f)
+	}
+	// t(0.975; 1) = tan(0.475 pi) = 12.7062047361747 (closed form of the Cauchy quantile).
+	if math.Abs(f.t-math.Tan(0.475*math.Pi)) > 1e-9 {
+		t.Errorf("t quantile %v, want %v", f.t, math.Tan(0.475*math.Pi))
+	}
+}
+
+// TestAnalyzeEdgeCases covers degenerate inputs.
+func TestAnalyzeEdgeCases(t *testing.T) {
+	cases := []struct {
+		name  string
+		build func(r *Results)
+		check func(t *testing.T, r *Results, err error)
+	}{
+		{"nil", nil, func(t *testing.T, _ *Results, err error) {
+			if err == nil || !strings.HasPrefix(err.Error(), "report: ") {
+				t.Errorf("err = %v", err)
+			}
+		}},
+		{"NaN AUC rejected", func(r *Results) { r.Scores[0].AUC = math.NaN() }, func(t *testing.T, _ *Results, err error) {
+			if err == nil || !strings.Contains(err.Error(), "not finite") {
+				t.Errorf("err = %v", err)
+			}
+		}},
+		{"single model has no decomposition", func(r *Results) {
+			r.Models = r.Models[:1]
+			var sc []Score
+			for _, s := range r.Scores {
+				if s.Model == r.Models[0].Name {
+					sc = append(sc, s)
+				}
+			}
+			r.Scores = sc
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(r.Sensitivity.Decompositions) != 0 {
+				t.Errorf("decompositions with one model")
+			}
+			if !strings.Contains(r.Sensitivity.Headline, "within 3 cells") {
+				t.Errorf("headline lacks independence warning: %s", r.Sensitivity.Headline)
+			}
+		}},
+		{"no scores at all", func(r *Results) {
+			for i := range r.Scores {
+				r.Scores[i].Scored = false
+			}
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			s := r.Sensitivity
+			if len(s.ScoredExtents) != 0 || !strings.HasPrefix(s.Headline, "No extent") {
+				t.Errorf("scored %v headline %q", s.ScoredExtents, s.Headline)
+			}
+			for _, sp := range s.Spreads {
+				if sp.Verdict != "undetermined" || sp.Slope.Defined {
+					t.Errorf("%s/%s: %s", sp.Metric, sp.Model, sp.Verdict)
+				}
+			}
+			if _, err := r.Encode(); err != nil {
+				t.Errorf("encode: %v", err)
+			}
+		}},
+		{"flat chain has no shares", func(r *Results) {
+			for i := range r.Rings {
+				r.Rings[i].AUCInner, r.Rings[i].AUCRing, r.Rings[i].AUCOuter = 0.8, 0.8, 0.8
+			}
+			for i := range r.Scores {
+				r.Scores[i].AUC = 0.8
+			}
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, c := range r.Sensitivity.Chains {
+				if c.SharesDefined || c.Largest != -1 {
+					t.Errorf("%s/%s: shares defined on a flat chain", c.Chain, c.Model)
+				}
+			}
+		}},
+		{"broken mix identity warns", func(r *Results) { r.Rings[0].AUCOuter += 0.01 }, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			found := false
+			for _, w := range r.Sensitivity.Warnings {
+				found = found || strings.Contains(w, "area-weighted mix")
+			}
+			if !found {
+				t.Errorf("no mix warning in %v", r.Sensitivity.Warnings)
+			}
+		}},
+		{"distances not computed", func(r *Results) {
+			for i := range r.Points {
+				r.Points[i].NearestTrainKm = 0
+			}
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Sensitivity.Independence.Defined || r.Sensitivity.Independence.Warn {
+				t.Errorf("independence defined without distances")
+			}
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var r *Results
+			if c.build != nil {
+				r = loadSample(t)
+				c.build(r)
+			}
+			err := Analyze(r)
+			c.check(t, r, err)
+		})
+	}
+}
+
+// TestAnalyzeSampleSummary checks skipped extents, unscored scores and the
+// wording that the report relies on.
+func TestAnalyzeSampleSummary(t *testing.T) {
+	r := analyzedSample(t)
+	s := r.Sensitivity
+	wantSkipped := []string{"ecoregions_min5", "points_b400"}
+	var got []string
+	for _, e := range s.SkippedExtents {
+		got = append(got, e.ID)
+	}
+	if !reflect.DeepEqual(got, wantSkipped) {
+		t.Errorf("skipped %v, want %v (sample: one empty, one duplicate)", got, wantSkipped)
+	}
+	if len(s.Unscored) != 2 {
+		t.Errorf("unscored %v, want truncated on region_b200 and whole", s.Unscored)
+	}
+	for _, w := range []string{"Across 8 extents", "AUC of model good ranged", "per doubling of area", "The extent, not the model"} {
+		if !strings.Contains(s.Headline, w) {
+			t.Errorf("headline lacks %q: %s", w, s.Headline)
+		}
+	}
+	if n := strings.Count(s.Headline, ". "); n < 1 || n > 2 {
+		t.Errorf("headline has %d sentence breaks: %s", n, s.Headline)
+	}
+	// Encoding must succeed (no NaN/Inf) and be deterministic.
+	a, err := r.Encode()
+	if err != nil {
+		t.Fatal(err)
+	}
+	r2 := analyzedSample(t)
+	b, _ := r2.Encode()
+	if string(a) != string(b) {
+		t.Error("Analyze is not deterministic")
+	}
+}
+
+func BenchmarkAnalyze_3models10extents(b *testing.B) {
+	base := loadSample(b)
+	b.ReportAllocs()
+	for b.Loop() {
+		r := *base
+		if err := Analyze(&r); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

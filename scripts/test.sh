@@ -1,0 +1,25 @@
+#!/usr/bin/env bash
+# The project's tests: installs what they need if missing, regenerates the
+# golden values from the reference libraries (scikit-learn, SciPy, R's pROC,
+# PROJ's geod) and fails if they differ from the committed ones, then runs
+# go vet and every Go test, the end-to-end and browser tests included.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+[ -x /usr/local/go/bin/go ] && export PATH="/usr/local/go/bin:$PATH"
+scripts/setup.sh --test
+
+echo "== golden values regenerated from the reference libraries"
+for r in testdata/*/regen.sh cmd/*/testdata/regen.sh; do
+  [ -f "$r" ] || continue
+  echo "-- $r"
+  bash "$r"
+done
+if ! git diff --exit-code --stat -- testdata cmd/*/testdata; then
+  echo "golden values changed when regenerated: the reference libraries disagree with the committed files" >&2
+  exit 1
+fi
+
+echo "== go vet"
+go vet ./...
+echo "== go test"
+go test -count=1 ./...
