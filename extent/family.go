@@ -287,7 +287,11 @@ func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error 
 	}
 	b.f.Chains[chainRegion] = chain
 	reach := newReach(lats, lons, maxD)
-	b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+	cuts := make([]float64, len(bufs))
+	for k, bf := range bufs {
+		cuts[k] = math.Abs(bf.d)
+	}
+	b.distanceField(ix, reach, maxD, cuts, func(i int, dist float64) {
 		inside := b.f.Mask[i]&baseBit != 0
 		for _, bf := range bufs {
 			if bf.d > 0 && (inside || dist <= bf.d) || bf.d < 0 && inside && dist > -bf.d {
@@ -325,7 +329,7 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 		maxD = math.Max(maxD, d*1000)
 	}
 	reach := newReach(lats, lons, maxD)
-	b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+	b.distanceField(ix, reach, maxD, dm, func(i int, dist float64) {
 		for k, d := range dm {
 			if dist <= d {
 				b.f.Mask[i] |= bits[k]
@@ -335,13 +339,28 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 	return nil
 }
 
-// distanceField calls set(i, dist) for every cell i whose centre is within
-// maxD metres (by the reach box) of a site in ix, and set(i, +Inf) for the
-// other cells, rows in parallel. Each call writes only its own cell.
-func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, set func(i int, dist float64)) {
+// distanceField calls set(i, dist) for every cell i of the grid, rows in
+// parallel; each call writes only its own cell. dist is the geodesic
+// distance from the cell centre to the nearest site of ix when that is
+// within maxD metres (by the reach box), +Inf otherwise.
+//
+// Only the class of each cell matters to the callers: which of the cut
+// distances (metres) the distance lies below. The distance is 1-Lipschitz
+// along a row, so after an exact query at distance D, the following cells
+// whose summed centre-to-centre steps stay below the gap between D and the
+// nearest cut are in the same class and receive D without a query. This
+// keeps the cost near the buffers' edges instead of over their whole area.
+func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, set func(i int, dist float64)) {
 	g := b.g
 	rows := make(chan int)
 	var wg sync.WaitGroup
+	gap := func(d float64) float64 {
+		m := math.Inf(1)
+		for _, c := range cuts {
+			m = math.Min(m, math.Abs(d-c))
+		}
+		return m
+	}
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
 		wg.Add(1)
 		go func() {
@@ -351,12 +370,36 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 			for row := range rows {
 				g.RowLonLat(row, lons, lats)
 				base := row * g.Width
+				// On latitude-longitude grids the step between neighbouring
+				// centres is the same along the row.
+				rowStep := -1.0
+				if g.Geographic && g.Width > 1 {
+					rowStep = geodesy.Distance(lats[0], lons[0], lats[1], lons[1])
+				}
 				for c := 0; c < g.Width; c++ {
-					d := math.Inf(1)
-					if !math.IsNaN(lats[c]) && reach.has(lons[c], lats[c]) {
-						_, d = ix.Nearest(lats[c], lons[c], maxD)
+					if math.IsNaN(lats[c]) || !reach.has(lons[c], lats[c]) {
+						set(base+c, math.Inf(1))
+						continue
 					}
+					_, d := ix.Nearest(lats[c], lons[c], maxD)
 					set(base+c, d)
+					if math.IsInf(d, 1) {
+						continue
+					}
+					// Skip ahead while the class cannot change.
+					room := gap(d)
+					for c+1 < g.Width && !math.IsNaN(lats[c+1]) {
+						if rowStep >= 0 {
+							room -= rowStep
+						} else {
+							room -= geodesy.Distance(lats[c], lons[c], lats[c+1], lons[c+1])
+						}
+						if room <= 0 || !reach.has(lons[c+1], lats[c+1]) {
+							break
+						}
+						c++
+						set(base+c, d)
+					}
 				}
 			}
 		}()

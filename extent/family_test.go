@@ -369,3 +369,52 @@ func TestFillMatchesContains(t *testing.T) {
 		t.Errorf("%d cells filled", n)
 	}
 }
+
+// TestBadGeometry: invalid features are repaired with a warning naming the
+// file and feature; empty layers, missing CRS and antimeridian-jumping
+// rings are refused with a message naming the file.
+func TestBadGeometry(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	// A bow-tie: self-intersecting at (2,2).
+	bow := writeGeoJSON(t, dir, "bow.geojson", []string{"b"}, [][][2]float64{{{1, 1}, {3, 3}, {3, 1}, {1, 3}, {1, 1}}})
+	s, warns, err := ReadShape(bow, g)
+	if err != nil {
+		t.Fatalf("bow-tie should be repaired, got %v", err)
+	}
+	if len(warns) != 1 || !strings.Contains(warns[0], "bow.geojson feature 1") || !strings.Contains(warns[0], "repaired") {
+		t.Errorf("warnings %q", warns)
+	}
+	n := 0
+	Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+	// The repaired bow-tie is two triangles of 1 square degree each: about
+	// 200 cells of 0.01 square degree (by construction).
+	if n < 180 || n > 220 {
+		t.Errorf("repaired bow-tie covers %d cells, want about 200", n)
+	}
+
+	empty := filepath.Join(dir, "empty.geojson")
+	os.WriteFile(empty, []byte(`{"type":"FeatureCollection","features":[]}`), 0o644)
+	if _, _, err := ReadShape(empty, g); err == nil || !strings.Contains(err.Error(), "empty.geojson") || !strings.Contains(err.Error(), "no polygon features") {
+		t.Errorf("empty layer: %v", err)
+	}
+
+	// A Shapefile without .prj has no CRS.
+	shp := filepath.Join(dir, "nocrs.shp")
+	{
+		ds, err := godalCreateShapefile(shp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_ = ds
+	}
+	if _, _, err := ReadShape(shp, g); err == nil || !strings.Contains(err.Error(), "no CRS") {
+		t.Errorf("shapefile without CRS: %v", err)
+	}
+
+	// An edge from 179 E to 179 W drawn the long way round.
+	am := writeGeoJSON(t, dir, "am.geojson", []string{"a"}, [][][2]float64{{{179, 1}, {-179, 1}, {-179, 3}, {179, 3}, {179, 1}}})
+	if _, _, err := ReadShape(am, g); err == nil || !strings.Contains(err.Error(), "antimeridian") {
+		t.Errorf("antimeridian ring: %v", err)
+	}
+}

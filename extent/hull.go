@@ -221,7 +221,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 	g := b.g
 	if maxD > 0 {
 		reach := newReach(lats, lons, maxD)
-		b.distanceField(ix, reach, maxD, func(i int, dist float64) {
+		b.distanceField(ix, reach, maxD, dm, func(i int, dist float64) {
 			for k, d := range dm {
 				if d > 0 && dist <= d {
 					b.f.Mask[i] |= bits[k]

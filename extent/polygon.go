@@ -82,7 +82,24 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if lsr == nil {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
 	}
+	if w, err := lsr.WKT(); err != nil || w == "" {
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+	}
 	defer lsr.Close()
+	// Invalid features (self-intersections, bad rings) are repaired with
+	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
+	// buffer would drop from a bow-tie, on a copy of the layer in memory.
+	if bad := invalidFeatures(layer); len(bad) > 0 {
+		fixed, err := ds.VectorTranslate("", []string{"-makevalid"}, godal.Memory)
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%v); fix them in a GIS", path, bad, err)
+		}
+		defer fixed.Close()
+		layer = fixed.Layers()[0]
+		for _, n := range bad {
+			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, n))
+		}
+	}
 	byID := map[string]*godal.Geometry{}
 	var order []string
 	layer.ResetReading()
@@ -116,7 +133,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			continue
 		}
 		t := geom.Type()
-		if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D {
+		if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
 			f.Close()
 			return nil, warns, fmt.Errorf("extent: %s feature %d is a %s, not a polygon", path, fid, geom.Name())
 		}
@@ -131,12 +148,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
 		}
 		if !own.Valid() {
-			fixed, err := own.Buffer(0, 8)
-			if err != nil || fixed.Empty() {
-				return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry (self-intersection?) that could not be repaired; fix it in a GIS", path, fid)
-			}
-			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with a zero-width buffer", path, fid))
-			own = fixed
+			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired; fix it in a GIS", path, fid)
 		}
 		if prev, ok := byID[id]; ok {
 			un, err := prev.Union(own)
@@ -165,6 +177,24 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// invalidFeatures returns the 1-based numbers of the layer's features whose
+// geometry is not valid.
+func invalidFeatures(layer godal.Layer) []int {
+	var bad []int
+	layer.ResetReading()
+	for n := 1; ; n++ {
+		f := layer.NextFeature()
+		if f == nil {
+			break
+		}
+		if g := f.Geometry(); g != nil && !g.Empty() && !g.Valid() {
+			bad = append(bad, n)
+		}
+		f.Close()
+	}
+	return bad
 }
 
 // shapeOf converts a GDAL geometry in the grid CRS to a Shape.

@@ -17,7 +17,8 @@ import (
 //	E_i = share of the extent's area with value in the window
 //	F_i = P_i / E_i
 //
-// Windows with E_i = 0 are skipped. The index is the Spearman rank
+// Windows with E_i = 0 are skipped (E_i <= 1e-12, rounding dust of the
+// interpolation below, counts as 0). The index is the Spearman rank
 // correlation (average ranks for ties) between F_i and the window midpoints
 // over the used windows.
 //
@@ -45,6 +46,11 @@ type Boyce struct {
 	// Reason says why the index is undefined (empty when Defined).
 	Reason string
 }
+
+// minBoyceShare is the area share at or below which a window counts as
+// empty: interpolation can leave rounding dust in windows that only touch a
+// bin's edge.
+const minBoyceShare = 1e-12
 
 // boyce computes the continuous Boyce index; sortedTest is ascending.
 func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce {
@@ -115,12 +121,12 @@ func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce
 		if i == steps-1 && steps > 1 {
 			hi = mx
 		}
-		ar := areaIn(lo, hi)
-		if !(ar > 0) {
+		e := areaIn(lo, hi) / total
+		if !(e > minBoyceShare) {
 			continue
 		}
 		c := sort.SearchFloat64s(sortedTest, math.Nextafter(hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, lo)
-		f := (float64(c) / n) / (ar / total)
+		f := (float64(c) / n) / e
 		b.Mid = append(b.Mid, lo+w/2)
 		b.Ratio = append(b.Ratio, f)
 	}

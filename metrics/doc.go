@@ -9,6 +9,11 @@
 //
 //	l, err := metrics.NewLayout(values, modelMin, modelMax, 4096)
 //
+// Give the histogram the model's whole value range (values outside are
+// clamped into the end bins) and enough bins that a Boyce window on the
+// smallest extent spans many of them: the Boyce index is the only metric
+// that reads the histogram.
+//
 // Per extent, make an Accumulator. For each raster cell, locate the value
 // once and add it to every extent that holds the cell:
 //
@@ -48,7 +53,7 @@
 // # Methods
 //
 //   - Full AUC (Mann-Whitney, ties 1/2): Hanley & McNeil (1982) Radiology
-//     143:29-36. See cumulative.auc in score.go and Scores.AUC.
+//     143:29-36. See Scores.AUC.
 //   - Partial ROC: Peterson, Papes & Soberon (2008) Ecological Modelling
 //     213:63-72. See PartialROC.
 //   - Threshold omission and binomial test: Anderson, Lew & Peterson (2003)

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"sort"
 )
 
 // maxLookup caps the number of lookup buckets (and so the table's memory).
@@ -12,7 +11,11 @@ const maxLookup = 1 << 22
 
 // maxHistBins caps the fine histogram so that a bad argument cannot ask
 // for an unbounded allocation.
-const maxHistBins = 1 << 22
+const maxHistBins = 1 << 20
+
+// maxLayoutValues caps the number of distinct layout values (bins are
+// indexed with int32 in the lookup table).
+const maxLayoutValues = 1 << 28
 
 // minHistBins is the smallest fine histogram accepted by NewLayout.
 const minHistBins = 16
@@ -36,18 +39,19 @@ const minHistBins = 16
 // statistics need. Beside the exact bins the layout defines a fine histogram
 // of histBins equal bins over [histMin, histMax) that the Boyce index reads.
 type Layout struct {
-	d    []float64 // sorted distinct values
-	ds   []float64 // d followed by three +Inf sentinels
-	d0   float64   // d[0] (+Inf when empty)
-	dMax float64   // d[m-1] (-Inf when empty)
-	top  int       // 2m, the last exact bin
+	d  []float64 // sorted distinct values
+	ds []float64 // d followed by two NaN sentinels (compare false, like values > v)
 
-	// Lookup table: bucket(v) = min(int((v-d0)*scale), nb-1) for v in
-	// [d0, dMax]; idx[k] is the first j with bucket(d[j]) >= k, so the
-	// candidates for v in bucket k are d[idx[k]:idx[k+1]].
+	// One lookup grid serves both bin searches: nb = hBins << shift equal
+	// buckets over [hMin, hMax), bucket(v) = clamp(floor((v-hMin)*scale),
+	// 0, nb-1). The fine-histogram bin is bucket(v) >> shift (scale is
+	// hScale times a power of two, so this equals floor((v-hMin)*hScale)
+	// exactly). idx[k] is the first j with bucket(d[j]) >= k, so the
+	// exact-bin candidates for v in bucket k are d[idx[k]:idx[k+1]].
 	scale float64
 	nb    int
 	nbf   float64 // float64(nb)
+	shift uint
 	idx   []int32
 
 	hMin, hMax, hScale float64
@@ -59,7 +63,8 @@ type Layout struct {
 // duplicates allowed; each must be finite. histMin < histMax (both finite)
 // is the range of the fine histogram: values outside it are clamped into the
 // end bins (exact minimum and maximum are tracked separately by each
-// Accumulator). histBins must be at least 16.
+// Accumulator). histBins must be in 16..2^20. Give the histogram the model's
+// whole value range: Locate is fastest when the layout values lie inside it.
 func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layout, error) {
 	for i, v := range values {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -75,35 +80,43 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 	if histBins < minHistBins || histBins > maxHistBins {
 		return nil, fmt.Errorf("metrics: histBins is %d, want %d..%d", histBins, minHistBins, maxHistBins)
 	}
-	hScale := float64(histBins) / (histMax - histMin)
-	if math.IsInf(hScale, 0) || math.IsNaN(hScale) || hScale <= 0 {
+	span := histMax - histMin
+	hScale := float64(histBins) / span
+	if math.IsInf(span, 0) || math.IsInf(hScale, 0) || !(hScale > 0) {
 		return nil, fmt.Errorf("metrics: histogram range [%v, %v] is too narrow or too wide for %d bins", histMin, histMax, histBins)
 	}
 
 	d := slices.Clone(values)
 	slices.Sort(d)
 	d = slices.Compact(d) // -0 and +0 compare equal and collapse too
+	for i := range d {
+		if d[i] == 0 {
+			d[i] = 0 // keep +0 whichever zero survived
+		}
+	}
 	m := len(d)
-	ds := append(d[:m:m], math.Inf(1), math.Inf(1), math.Inf(1))
-	l := &Layout{d: ds[:m], ds: ds, hMin: histMin, hMax: histMax, hScale: hScale, hBins: histBins, nb: 1,
-		top: 2 * m, d0: math.Inf(1), dMax: math.Inf(-1)}
-	if m > 0 {
-		l.d0, l.dMax = d[0], d[m-1]
+	if m > maxLayoutValues {
+		return nil, fmt.Errorf("metrics: %d distinct layout values, at most %d are supported", m, maxLayoutValues)
 	}
+	ds := append(d[:m:m], math.NaN(), math.NaN())
+	l := &Layout{d: ds[:m], ds: ds, hMin: histMin, hMax: histMax, hScale: hScale, hBins: histBins}
+
+	// Refine the grid until about 4 buckets per layout value fall on the
+	// layout values' span (clamped to the histogram range), so that most
+	// buckets hold at most two candidates.
+	covered := 1.0
 	if m >= 2 {
-		nb := 1
-		for nb < 4*m && nb < maxLookup {
-			nb <<= 1
-		}
-		l.nb = nb
-		l.scale = float64(nb) / (l.dMax - l.d0)
-		if math.IsInf(l.scale, 0) || math.IsNaN(l.scale) {
-			// Degenerate spans (overflowing or subnormal): one bucket,
-			// binary search inside it.
-			l.nb, l.scale = 1, 0
-		}
+		lo, hi := math.Max(d[0], histMin), math.Min(d[m-1], histMax)
+		covered = math.Max((hi-lo)/span, 1/float64(histBins))
 	}
+	for float64(histBins<<l.shift)*covered < 4*float64(m) && histBins<<(l.shift+1) <= maxLookup &&
+		!math.IsInf(hScale*float64(uint64(1)<<(l.shift+1)), 0) {
+		l.shift++
+	}
+	l.nb = histBins << l.shift
 	l.nbf = float64(l.nb)
+	l.scale = hScale * float64(uint64(1)<<l.shift)
+
 	l.idx = make([]int32, l.nb+1)
 	j := 0
 	for k := 0; k <= l.nb; k++ {
@@ -115,66 +128,60 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 	return l, nil
 }
 
-// bucket maps v in [d0, dMax] to its lookup bucket. It is monotone
-// non-decreasing in v, which is what makes the lookup exact.
+// bucket maps v to its lookup bucket, clamped to [0, nb-1] (NaN gives 0).
+// It is monotone non-decreasing in v, which is what makes the lookup exact.
 func (l *Layout) bucket(v float64) int {
-	x := (v - l.d0) * l.scale
-	if !(x < l.nbf) { // also catches NaN from Inf*0 on overflowing spans
-		return l.nb - 1
+	x := (v - l.hMin) * l.scale
+	switch {
+	case !(x >= 0):
+		return 0
+	case x < l.nbf:
+		return int(x)
 	}
-	return int(x)
+	return l.nb - 1
 }
 
 // Locate returns the exact bin of v (see Layout) and its fine-histogram bin.
-// It costs O(1) on average: a lookup table over [d_0, d_{m-1}] narrows the
-// search to the (usually at most two) layout values in v's bucket, which are
-// compared without branches; a crowded bucket falls back to bisection.
-// NaN is mapped to (0, 0); callers that may see NaN should use
-// Accumulator.Add, which skips it.
+// It costs O(1) on average: one lookup grid gives the histogram bin and
+// narrows the exact search to the (usually at most two) layout values in
+// v's bucket, which are compared without branches; a crowded bucket falls
+// back to bisection. NaN is mapped to (0, 0); callers that may see NaN
+// should use Accumulator.Add, which skips it.
 func (l *Layout) Locate(v float64) (bin, hist int) {
-	if v >= l.hMin { // false for NaN
-		if v < l.hMax {
-			hist = int((v - l.hMin) * l.hScale)
-			if hist >= l.hBins {
-				hist = l.hBins - 1
-			}
-		} else {
-			hist = l.hBins - 1
+	k := 0
+	if x := (v - l.hMin) * l.scale; x >= 0 { // false for NaN
+		k = l.nb - 1
+		if x < l.nbf {
+			k = int(x)
 		}
 	}
-	if !(v >= l.d0) { // below d_0, NaN, or no layout values (d0 = +Inf)
-		return 0, hist
-	}
-	if v > l.dMax {
-		return l.top, hist
-	}
-	k := l.nb - 1
-	if x := (v - l.d0) * l.scale; x < l.nbf {
-		k = int(x)
-	}
+	hist = k >> l.shift
 	j, end := int(l.idx[k]), int(l.idx[k+1])
 	if end-j > 2 {
-		return l.locateCrowded(v, j, end), hist
+		// Crowded bucket: bisect for the first d >= v in d[j:end]. Written
+		// inline so that Locate stays a leaf function.
+		lo, hi := j, end
+		for lo < hi {
+			mid := int(uint(lo+hi) >> 1)
+			if l.d[mid] < v {
+				lo = mid + 1
+			} else {
+				hi = mid
+			}
+		}
+		if lo < end && l.d[lo] == v {
+			return 2*lo + 1, hist
+		}
+		return 2 * lo, hist
 	}
-	// At most two candidates d[j], d[j+1], and every d from end on is > v
-	// (or a +Inf sentinel), so the first d >= v is d[j + (a<v) + (b<v)]
-	// and, the values being sorted, it equals v iff one of a, b, c does.
-	// The three loads are independent, which keeps the dependency chain
-	// short.
-	w := l.ds[j : j+3 : j+3]
-	a, b, c := w[0], w[1], w[2]
+	// At most two candidates a = d[j], b = d[j+1]; every d from end on is
+	// > v (or a NaN sentinel, for which < and == are false as well). So the first d >= v is d[j + (a<v) + (b<v)],
+	// and it equals v iff a or b does. The two loads are independent, which
+	// keeps the dependency chain short.
+	w := l.ds[j : j+2 : j+2]
+	a, b := w[0], w[1]
 	j += b2i(a < v) + b2i(b < v)
-	return 2*j + (b2i(a == v) | b2i(b == v) | b2i(c == v)), hist
-}
-
-// locateCrowded finds the exact bin of v among the candidates d[j:end] of
-// a bucket holding more than two layout values.
-func (l *Layout) locateCrowded(v float64, j, end int) int {
-	j += sort.SearchFloat64s(l.d[j:end], v)
-	if j < end && l.d[j] == v {
-		return 2*j + 1
-	}
-	return 2 * j
+	return 2*j + (b2i(a == v) | b2i(b == v)), hist
 }
 
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.

@@ -37,7 +37,21 @@ type Scores struct {
 	// AUC is the area-weighted full AUC of the test presences against the
 	// background, AUCUnweighted the same with every cell counted once, and
 	// AUCTrain the area-weighted AUC of the training presences (0 when
-	// TrainN == 0). See AUC for the formula.
+	// TrainN == 0). With the Mann-Whitney statistic (ties count 1/2) of
+	// Hanley & McNeil (1982):
+	//
+	//	AUC = sum_p [ W(< v_p) + W(= v_p)/2 ] / (n * W_total)
+	//
+	// where W(.) is the background area (cell count for AUCUnweighted) with
+	// value below / equal to the presence value v_p, n the number of
+	// presences and W_total the whole background (the extent's cells,
+	// presences' own cells included). The numerator is summed exactly in
+	// 128-bit integers; the only rounding is the final division. The area
+	// under Curve equals AUC.
+	//
+	// Hanley, J.A. & McNeil, B.J. (1982) The meaning and use of the area
+	// under a receiver operating characteristic (ROC) curve. Radiology
+	// 143:29-36.
 	AUC, AUCUnweighted, AUCTrain float64
 	// AUCBootSD is the sample standard deviation (denominator B-1; 0 when
 	// B == 1) of the weighted test AUC over the partial ROC bootstrap
@@ -227,18 +241,9 @@ func newPresences(c *cumulative, idx []int) *presences {
 	return p
 }
 
-// auc returns the full AUC of the presences p against the background,
-// after Hanley & McNeil (1982) (Mann-Whitney statistic, ties count 1/2):
-//
-//	AUC = sum_p [ W(< v_p) + W(= v_p)/2 ] / (n * W_total)
-//
-// where W(.) is the background area (cells == true: cell count) with value
-// below / equal to the presence's value v_p, n the number of presences and
-// W_total the total background. The numerator is summed exactly in 128-bit
-// integers, so the only rounding is the final division.
-//
-// Hanley, J.A. & McNeil, B.J. (1982) The meaning and use of the area under a
-// receiver operating characteristic (ROC) curve. Radiology 143:29-36.
+// auc returns the full AUC of the presences p against the background (see
+// Scores.AUC for the formula and citation); cells selects cell counts
+// instead of area weights.
 func (c *cumulative) auc(p *presences, cells bool) float64 {
 	lt, eq, total := c.ltA, c.eqA, c.w
 	if cells {

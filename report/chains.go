@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 )
 
 const (
@@ -207,13 +208,18 @@ func fmtArea(v float64) string {
 	return groupThousands(r)
 }
 
-// trimFloat prints v with sig significant digits, no exponent.
+// trimFloat prints v with sig significant digits, no exponent, without
+// trailing zeros.
 func trimFloat(v float64, sig int) string {
 	d := sig - 1 - int(math.Floor(math.Log10(math.Abs(v))))
 	if d < 0 {
 		d = 0
 	}
-	return fmt.Sprintf("%.*f", d, v)
+	s := fmt.Sprintf("%.*f", d, v)
+	if strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	return s
 }
 
 func groupThousands(n int64) string {

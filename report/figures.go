@@ -20,10 +20,11 @@ import (
 )
 
 // okabeIto is the eight-colour palette of Okabe & Ito (2008, "Color
-// Universal Design", https is not used here: J*Fly data depository), safe for
-// the common colour-vision deficiencies. Order chosen by us so that the
-// first three also differ in grey value: black, orange, blue, bluish green,
-// reddish purple, sky blue, vermillion, yellow.
+// Universal Design (CUD): how to make figures and presentations that are
+// friendly to colorblind people", J*Fly), safe for the common colour-vision
+// deficiencies. The order is ours, chosen so that the first three colours
+// also differ in grey value: black, orange, blue, bluish green, reddish
+// purple, sky blue, vermillion, yellow.
 var okabeIto = []color.RGBA{
 	{0, 0, 0, 255},
 	{230, 159, 0, 255},
@@ -100,7 +101,7 @@ func renderSVG(f figure) ([]byte, error) {
 	if _, err := c.WriteTo(&buf); err != nil {
 		return nil, fmt.Errorf("report: figure %s: write SVG: %w", f.Name, err)
 	}
-	return buf.Bytes(), nil
+	return fixSVGImages(buf.Bytes()), nil
 }
 
 // renderPNG draws f into a PNG image at 150 dpi on white.
@@ -329,7 +330,7 @@ func rocFigure(r *Results) figure {
 	}
 	f := figure{Name: "roc_curves", Title: "ROC curves on the area axis",
 		Caption: fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of test presences predicted present (y), one panel per model, one line per extent (darker and solid = smaller, lighter = larger). Shaded: the partial ROC region y >= 1 - E for E = %s. Dotted: random prediction.", fmtG(e)),
-		W: 7.5 * vg.Inch, H: vg.Length(rows) * 2.9 * vg.Inch}
+		W:       7.5 * vg.Inch, H: vg.Length(rows) * 2.9 * vg.Inch}
 	if cols == 1 {
 		f.W = 3.8 * vg.Inch
 	}
@@ -379,6 +380,7 @@ func rocFigure(r *Results) figure {
 			}
 			p.Legend.Top = false
 			p.Legend.Left = false
+			p.Legend.Padding = vg.Points(1.5)
 			p.Legend.YOffs = vg.Points(2)
 			plots[i/cols][i%cols] = p
 		}
@@ -541,7 +543,7 @@ func mapFigure(r *Results) (figure, bool) {
 	}
 	f := figure{Name: "map", Title: "Map of the extents",
 		Caption: fmt.Sprintf("Suitability of model %s (coarse preview; dark = high, white = no data) with the outline of every usable extent (one colour and dash each), training points (open circles), test points (filled triangles) and test points omitted at the minimum training presence threshold of %s (large ring).", model, model),
-		W: 7.5 * vg.Inch, H: 5 * vg.Inch}
+		W:       7.5 * vg.Inch, H: 5 * vg.Inch}
 	f.draw = func(dc draw.Canvas) error {
 		vals, masks, err := decodePreview(pv, len(r.Extents))
 		if err != nil {
@@ -607,8 +609,12 @@ func mapFigure(r *Results) (figure, bool) {
 				return
 			}
 			if halo {
+				var shape draw.GlyphDrawer = gs.Shape
+				if _, ring := shape.(draw.RingGlyph); ring {
+					shape = draw.CircleGlyph{}
+				}
 				hs, _ := plotter.NewScatter(xys)
-				hs.GlyphStyle = draw.GlyphStyle{Color: color.White, Radius: gs.Radius + vg.Points(1.2), Shape: gs.Shape}
+				hs.GlyphStyle = draw.GlyphStyle{Color: color.White, Radius: gs.Radius + vg.Points(1.2), Shape: shape}
 				p.Add(hs)
 			}
 			sc, _ := plotter.NewScatter(xys)
@@ -685,7 +691,7 @@ func ringsFigure(r *Results) (figure, bool) {
 	}
 	f := figure{Name: "rings", Title: "Nested rings",
 		Caption: "Nested chains: left, AUC of each ring alone (test presences against the background added by the ring); right, share of the AUC change from the first to the last member contributed by each step (a ring, or test points that enter with it). Bars per model; dotted line: AUC 0.5.",
-		W: 7.5 * vg.Inch, H: vg.Length(len(chains)) * 2.5 * vg.Inch}
+		W:       7.5 * vg.Inch, H: vg.Length(len(chains)) * 2.5 * vg.Inch}
 	f.draw = func(dc draw.Canvas) error {
 		plots := make([][]*plot.Plot, len(chains))
 		for j, ch := range chains {
@@ -768,19 +774,30 @@ func ringsFigure(r *Results) (figure, bool) {
 			pb.Add(zero)
 			var an, sn []string
 			for _, k := range ringKeys {
-				an = append(an, "ring to "+k.outer)
+				an = append(an, "ring to\n"+k.outer)
 			}
 			for _, k := range stepKeys {
 				if k.kind == "ring" {
-					sn = append(sn, "ring to "+k.outer)
+					sn = append(sn, "ring to\n"+k.outer)
 				} else {
-					sn = append(sn, "pts of "+k.outer)
+					sn = append(sn, "test points\nof "+k.outer)
 				}
 			}
 			pa.NominalX(an...)
 			pb.NominalX(sn...)
 			pb.Legend.Top = true
 			pb.Legend.Left = false
+			// Head room for the legend above the bars.
+			lo, hi := 0.0, 0.0
+			for _, cs := range s.Chains {
+				if cs.Chain != ch {
+					continue
+				}
+				for _, st := range cs.Steps {
+					lo, hi = math.Min(lo, st.Share), math.Max(hi, st.Share)
+				}
+			}
+			pb.Y.Min, pb.Y.Max = lo-0.05*(hi-lo), hi+0.45*(hi-lo)+0.01
 			plots[j] = []*plot.Plot{pa, pb}
 		}
 		tiles := draw.Tiles{Rows: len(chains), Cols: 2, PadX: vg.Points(16), PadY: vg.Points(14),
@@ -817,4 +834,11 @@ func inlineSVG(svg []byte, id, label string) string {
 	}
 	attrs := fmt.Sprintf(`<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
 	return strings.Replace(s, "<svg", attrs, 1)
+}
+
+// fixSVGImages makes embedded raster images fill their rectangle (the map
+// preview is stretched to the data extent, not letterboxed) and keeps their
+// cells sharp.
+func fixSVGImages(svg []byte) []byte {
+	return bytes.ReplaceAll(svg, []byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `))
 }

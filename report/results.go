@@ -48,6 +48,9 @@ type Settings struct {
 	HullBuffersKm      []float64 `json:"hull_buffers_km"`
 	EcoregionMinPoints int       `json:"ecoregion_min_points"`
 	EcoregionField     string    `json:"ecoregion_field,omitempty"`
+	EcoregionClip      bool      `json:"ecoregion_clip"`
+	OccurrencesCRS     string    `json:"occurrences_crs"` // empty: WGS84 longitude/latitude
+	Extra              []string  `json:"extra_extents"`   // NAME=PATH as given
 	E                  []float64 `json:"e"`
 	Iterations         int       `json:"iterations"`
 	ResampleFraction   float64   `json:"resample_fraction"`
@@ -89,15 +92,15 @@ type Model struct {
 
 // Point is one occurrence record after reading, thinning and sampling.
 type Point struct {
-	ID     int     `json:"id"`   // 1-based data line number in the occurrence file
+	ID     int     `json:"id"`   // physical line number in the occurrence file (the header is line 1)
 	Role   string  `json:"role"` // "train" or "test"
 	Lon    float64 `json:"lon"`
 	Lat    float64 `json:"lat"`
 	Row    int     `json:"row"`
 	Col    int     `json:"col"`
 	Status string  `json:"status"` // "scored", "outside_raster", "nodata", "thinned"
-	// NearestTrainKm is the geodesic distance to the nearest other training
-	// point (test points: nearest training point). Zero when not computed.
+	// NearestTrainKm is, for scored test points, the geodesic distance to
+	// the nearest scored training point; 0 for other points.
 	NearestTrainKm float64 `json:"nearest_train_km"`
 }
 

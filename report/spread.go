@@ -240,7 +240,7 @@ func verdictFor(m MetricInfo, spreads []Spread) Verdict {
 		}
 	}
 	if nDet == 0 || worst == nil {
-		v.Sentence = fmt.Sprintf("%s: fewer than two scored extents for every model, so no verdict.", m.Label)
+		v.Sentence = fmt.Sprintf("%s: fewer than two scored extents for every model, so no verdict.", upperFirst(m.Label))
 		return v
 	}
 	noise := func(sp *Spread) string {
@@ -253,16 +253,16 @@ func verdictFor(m MetricInfo, spreads []Spread) Verdict {
 		v.Verdict = "robust"
 		if worst.BootSDDefined {
 			v.Sentence = fmt.Sprintf("%s is robust to the extent: for every model its range across extents stays within %g times the median bootstrap SD (widest: %s, %s–%s, %s).",
-				m.Label, RobustBootFactor, worst.Model, f3(worst.Min), f3(worst.Max), noise(worst))
+				upperFirst(m.Label), RobustBootFactor, worst.Model, f3(worst.Min), f3(worst.Max), noise(worst))
 		} else {
 			v.Sentence = fmt.Sprintf("%s is robust to the extent: for every model it moves by at most %g across extents (widest: %s, %s–%s).",
-				m.Label, RobustAbsRange, worst.Model, f3(worst.Min), f3(worst.Max))
+				upperFirst(m.Label), RobustAbsRange, worst.Model, f3(worst.Min), f3(worst.Max))
 		}
 		return v
 	}
 	v.Verdict = "extent-sensitive"
 	v.Sentence = fmt.Sprintf("%s is extent-sensitive: for model %s it ranges %s (%s) to %s (%s) across %d extents, %s; the choice of extent moves it more than %s.",
-		m.Label, worst.Model, f3(worst.Min), worst.MinExtent, f3(worst.Max), worst.MaxExtent, worst.N, noise(worst),
+		upperFirst(m.Label), worst.Model, f3(worst.Min), worst.MinExtent, f3(worst.Max), worst.MaxExtent, worst.N, noise(worst),
 		map[bool]string{true: "resampling the test points does", false: "our cut-off allows"}[worst.BootSDDefined])
 	return v
 }

@@ -348,6 +348,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		}
 	}
 	_ = test
+	checkGeoPackage(t, filepath.Join(out, "extents.gpkg"), res, 0.25*0.25)
 	for _, f := range []string{"results.json", "scores.csv", "extents.gpkg", "run.log", "omitted_points.gpkg"} {
 		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
 			t.Errorf("output %s missing: %v", f, err)
@@ -419,7 +420,7 @@ func TestRunErrors(t *testing.T) {
 		{"swapped columns", []string{"run", "--model", "m=" + s.model, "--occurrences", swapped, "--region", s.region}, "swapped"},
 		{"region not overlapping", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.far}, "does not overlap"},
 		{"E outside (0,1)", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--e", "1.5"}, "outside (0,1)"},
-		{"iterations < 1", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "0"}, "--iterations is 0"},
+		{"iterations < 1", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "0"}, "--iterations is 0; it must be between 1"},
 		{"out is a file", base(notADir), "not a directory"},
 		{"unknown flag", []string{"run", "--modle", "x"}, "unknown flag"},
 	}
@@ -535,5 +536,60 @@ func TestDemo(t *testing.T) {
 	// Re-render from results.json.
 	if _, se, code := runBin(t, "report", out); code != 0 {
 		t.Errorf("report: exit %d: %s", code, se)
+	}
+}
+
+// checkGeoPackage opens extents.gpkg as a GIS would and checks one feature
+// per scored extent with its attributes, and that each outline encloses
+// exactly the extent's cells (planar area in square degrees = cells x cell
+// size, by construction of a cell-edge outline).
+func checkGeoPackage(t *testing.T, path string, res *report.Results, cellDeg2 float64) {
+	t.Helper()
+	ds, err := godal.Open(path, godal.VectorOnly())
+	if err != nil {
+		t.Fatalf("open %s: %v", path, err)
+	}
+	defer ds.Close()
+	var layer godal.Layer
+	found := false
+	for _, l := range ds.Layers() {
+		if l.Name() == "extents" {
+			layer, found = l, true
+		}
+	}
+	if !found {
+		t.Fatal("extents.gpkg has no layer 'extents'")
+	}
+	want := map[string]report.Extent{}
+	for _, e := range res.Extents {
+		if e.Status == "ok" {
+			want[e.ID] = e
+		}
+	}
+	n := 0
+	layer.ResetReading()
+	for {
+		f := layer.NextFeature()
+		if f == nil {
+			break
+		}
+		n++
+		fl := f.Fields()
+		id := fl["id"].String()
+		e, ok := want[id]
+		if !ok {
+			t.Errorf("unexpected feature %q", id)
+			continue
+		}
+		if fl["kind"].String() != e.Kind || fl["cells"].Int() != e.Cells || math.Abs(fl["area_km2"].Float()-e.AreaKm2) > 1e-6*e.AreaKm2 {
+			t.Errorf("%s: attributes kind %s cells %d area %.3f; want %s %d %.3f", id, fl["kind"].String(), fl["cells"].Int(), fl["area_km2"].Float(), e.Kind, e.Cells, e.AreaKm2)
+		}
+		if a := f.Geometry().Area(); math.Abs(a-float64(e.Cells)*cellDeg2) > 1e-9 {
+			t.Errorf("%s: outline encloses %.6f square degrees, cells give %.6f", id, a, float64(e.Cells)*cellDeg2)
+		}
+		f.Close()
+	}
+	if n != len(want) {
+		t.Errorf("extents.gpkg has %d features, want %d", n, len(want))
 	}
 }

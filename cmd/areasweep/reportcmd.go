@@ -48,7 +48,7 @@ func reportRun(o *ReportOptions) error {
 	if err := report.Analyze(r); err != nil {
 		return err
 	}
-	if err := reportWrite(o.Dir, r); err != nil {
+	if err := report.Write(o.Dir, r); err != nil {
 		return err
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))

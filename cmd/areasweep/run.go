@@ -50,6 +50,9 @@ type RunOptions struct {
 	inputsDir string
 }
 
+// maxIterations bounds the bootstrap so that a typo cannot ask for hours.
+const maxIterations = 1_000_000
+
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
 	return RunOptions{
@@ -233,8 +236,8 @@ func (o *RunOptions) validate() error {
 	if len(o.E) == 0 {
 		return fmt.Errorf("--e is empty; give at least one allowable omission, e.g. 0.05")
 	}
-	if o.Iterations < 1 {
-		return fmt.Errorf("--iterations is %d; it must be 1 or more", o.Iterations)
+	if o.Iterations < 1 || o.Iterations > maxIterations {
+		return fmt.Errorf("--iterations is %d; it must be between 1 and %d", o.Iterations, maxIterations)
 	}
 	if !(o.Fraction > 0 && o.Fraction <= 1) {
 		return fmt.Errorf("--fraction %g is outside (0,1]", o.Fraction)

@@ -130,7 +130,7 @@ func sweep(o *RunOptions) error {
 		if err := writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res); err != nil {
 			return err
 		}
-		if err := reportWrite(stage, s.res); err != nil {
+		if err := report.Write(stage, s.res); err != nil {
 			return err
 		}
 	}
@@ -493,6 +493,11 @@ func (s *session) buildFamily() error {
 		HullBuffersKm: nonNil(spec.HullBuffersKm), EcoregionMinPoints: o.EcoregionMinPoints, EcoregionField: o.EcoregionField,
 		E: nonNil(o.E), Iterations: o.Iterations, ResampleFraction: o.Fraction, FixedThresholds: nonNil(o.Thresholds),
 		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100,
+		EcoregionClip: o.EcoregionClip, OccurrencesCRS: o.OccurrencesCRS, Extra: []string{},
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		s.res.Settings.Extra = append(s.res.Settings.Extra, name+"="+s.recordedPath(path))
 	}
 	return nil
 }

@@ -263,11 +263,15 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 			defer wg.Done()
 			areas := make([]float64, g.Width)
 			weights := make([]int64, g.Width)
+			// Statistics stay local until the end: workers' partials sit
+			// side by side in memory and per-cell writes would share cache lines.
+			var st Stats
 			for b := range blocks {
-				r.scoreBlock(g, fam, layout, b, p.accs, &p.stats, areas, weights, opt.Preview)
+				r.scoreBlock(g, fam, layout, b, p.accs, &st, areas, weights, opt.Preview)
 				free <- b.buf
 				doneBlocks <- struct{}{}
 			}
+			p.stats = st
 		}(&parts[w])
 	}
 	errc := make(chan error, 1)

@@ -181,10 +181,10 @@ const MaxDensifySegments = 1 << 24
 // equal pieces (n+1 points; `geod +n_S=n` gives the same points, whereas
 // `geod +del_S=` rounds s/del_S to the nearest integer and may space points
 // further apart). The interior points come from PROJ's geod_inverseline and
-// geod_position (Karney 2013); their longitudes are reduced to [-180, 180]. If maxStep is not a
-// positive finite number, or the points coincide, only the two end points are
-// returned. n is capped at MaxDensifySegments. Latitudes outside [-90, 90]
-// give NaN interior points.
+// geod_position (Karney 2013); their longitudes are reduced to [-180, 180].
+// If maxStep is not a positive finite number, or the points coincide, only
+// the two end points are returned. n is capped at MaxDensifySegments.
+// Latitudes outside [-90, 90] give NaN interior points.
 func Densify(lat1, lon1, lat2, lon2, maxStep float64) (lats, lons []float64) {
 	n := 1
 	if maxStep > 0 && !math.IsInf(maxStep, 1) {

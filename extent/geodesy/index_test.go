@@ -103,11 +103,13 @@ func TestNearestVsBruteForce(t *testing.T) {
 	}
 }
 
-// TestNearestEllipsoidBeatsChord builds cases where the chord between unit
-// normals (a sphere) and the WGS84 geodesic disagree on the nearest site: one
-// degree of latitude at the equator is 110 574 m but one degree of longitude is
-// 111 319 m, so a site 0.995 deg east is "nearer" in angle yet farther on the
-// ellipsoid than a site 1 deg north. The exact stage must pick the true one.
+// TestNearestEllipsoidBeatsChord builds cases where the chord between the
+// index's unit vectors and the WGS84 geodesic disagree on the nearest site.
+// The rectifying-latitude vectors are exact along meridians but shrink
+// east-west lines on the equator by R_r/a: one degree of latitude from the
+// equator is 110 574 m, while 0.9934 deg of longitude on the equator is
+// 110 584 m yet has the smaller chord. The exact stage must pick the north
+// site.
 func TestNearestEllipsoidBeatsChord(t *testing.T) {
 	tests := []struct {
 		name       string
@@ -115,10 +117,10 @@ func TestNearestEllipsoidBeatsChord(t *testing.T) {
 		qlat, qlon float64
 		want       int
 	}{
-		{"equator_north_vs_east", []float64{0, 1}, []float64{0.995, 0}, 0, 0, 1},
-		{"equator_east_vs_north", []float64{1, 0}, []float64{0, 0.995}, 0, 0, 0},
-		{"across_antimeridian", []float64{0, -1}, []float64{-179.005, 180}, 0, 180, 1},
-		{"polar_cap_45_vs_meridian", []float64{89.9, 89.0}, []float64{0, 0}, 89.0, 180, 0},
+		{"equator_north_vs_east", []float64{0, 1}, []float64{0.9934, 0}, 0, 0, 1},
+		{"equator_east_vs_north", []float64{1, 0}, []float64{0, -0.9934}, 0, 0, 0},
+		{"across_antimeridian", []float64{0, -1}, []float64{-179.0066, 180}, 0, 180, 1},
+		{"polar_cap", []float64{89.9, 89.0}, []float64{0, 0}, 89.0, 180, 0},
 		{"duplicate_tie_first_index", []float64{10, 10, 10}, []float64{20, 20, 20}, 11, 21, 0},
 	}
 	for _, tc := range tests {
@@ -272,6 +274,76 @@ func BenchmarkNewIndex100000(b *testing.B) {
 	for b.Loop() {
 		if _, err := NewIndex(slat, slon); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// TestIndexLowerBounds checks the two lower bounds the Index relies on
+// against Inverse on 40 000 random pairs (fixed seed; uniform, nearly
+// antipodal, short, and nearly antipodal along the equator): (1) s >= R_r
+// sigma with sigma the angle between rectifying unit vectors, and (2) s >=
+// ECEF chord. It also checks that bound (1) is within the factor R_r/a of s
+// claimed in the Index documentation. The allowance 1e-13 s + 20 nm covers
+// PROJ's ~15 nm error and the rounding of ECEF coordinates (~1 nm); the Index
+// itself adds 1e-6 m.
+func TestIndexLowerBounds(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	worst := 0.0
+	for i := range 40000 {
+		lat1, lon1 := math.Asin(2*r.Float64()-1)*180/math.Pi, 360*r.Float64()-180
+		var lat2, lon2 float64
+		switch i % 5 {
+		case 0:
+			lat2, lon2 = math.Asin(2*r.Float64()-1)*180/math.Pi, 360*r.Float64()-180
+		case 1:
+			lat2, lon2 = math.Max(-90, math.Min(90, -lat1+r.Float64()-0.5)), lon1+180+2*(r.Float64()-0.5)
+		case 2:
+			lat2, lon2 = math.Max(-90, math.Min(90, lat1+0.1*(r.Float64()-0.5))), lon1+0.1*(r.Float64()-0.5)
+		case 3:
+			lat1, lat2, lon2 = 2*(r.Float64()-0.5), 2*(r.Float64()-0.5), lon1+175+5*r.Float64()
+		case 4: // short east-west lines, where bound (1) is loosest
+			lat2, lon2 = lat1, lon1+r.Float64()
+		}
+		s := Distance(lat1, lon1, lat2, lon2)
+		v1, p1 := siteVectors(lat1, lon1)
+		v2, p2 := siteVectors(lat2, lon2)
+		sigma := 2 * math.Asin(math.Min(1, math.Sqrt(d2(&v1, &v2))/2))
+		if b1 := rectBound * sigma; b1 > s*(1+1e-13)+2e-8 {
+			t.Fatalf("bound (1) violated: (%v,%v)-(%v,%v): s %v < R sigma %v", lat1, lon1, lat2, lon2, s, b1)
+		} else if s > 0 {
+			worst = math.Max(worst, 1-b1/s)
+		}
+		if d := math.Sqrt(d2(&p1, &p2)); d > s*(1+1e-13)+2e-8 {
+			t.Fatalf("bound (2) violated: (%v,%v)-(%v,%v): s %v < chord %v", lat1, lon1, lat2, lon2, s, d)
+		}
+	}
+	if lim := 1 - rectRadius/SemiMajor; worst > lim*(1+1e-6) {
+		t.Errorf("bound (1) looseness %v exceeds 1 - R_r/a = %v", worst, lim)
+	}
+	t.Logf("largest relative looseness of bound (1): %.6g (1 - R_r/a = %.6g)", worst, 1-rectRadius/SemiMajor)
+}
+
+// TestRectifying checks the rectifying latitude used by the Index: R_r mu
+// equals the meridian arc from Inverse (Karney 2013 via PROJ) to 1 micrometre
+// at every 0.5 degree, the quarter meridian R_r pi/2 is 10 001 965.729 m (FROM
+// MEMORY, as in TestHandbookLengths), and the east-west stretch condition of
+// bound (1), R_r cos(mu) <= N cos(phi) = a cos(beta), holds on a 0.001-degree
+// grid.
+func TestRectifying(t *testing.T) {
+	if q := rectRadius * math.Pi / 2; math.Abs(q-10001965.729) > 1e-3 {
+		t.Errorf("R_r pi/2 = %.4f, want 10001965.729", q)
+	}
+	for lat := 0.5; lat <= 90; lat += 0.5 {
+		m := Distance(0, 0, lat, 0)
+		if got := rectRadius * rectifying(lat*math.Pi/180); math.Abs(got-m) > 1e-6 {
+			t.Errorf("lat %v: R_r mu = %.9f, meridian arc %.9f", lat, got, m)
+		}
+	}
+	for k := 0; k <= 90000; k++ {
+		phi := float64(k) / 1000 * math.Pi / 180
+		beta := math.Atan2((1-Flattening)*math.Sin(phi), math.Cos(phi))
+		if rectRadius*math.Cos(rectifying(phi)) > SemiMajor*math.Cos(beta)*(1+1e-15) {
+			t.Fatalf("stretch condition fails at %v deg", float64(k)/1000)
 		}
 	}
 }

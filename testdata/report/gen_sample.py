@@ -118,7 +118,6 @@ for src in (0, 5):
                    "lat": q["lat"], "row": q["row"], "col": q["col"], "status": "thinned",
                    "nearest_train_km": 0.0})
     line += 1
-# shuffle file order so ids are not grouped by role (ids stay line numbers)
 scored = [q for q in points if q["status"] == "scored"]
 train = [q for q in scored if q["role"] == "train"]
 test = [q for q in scored if q["role"] == "test"]

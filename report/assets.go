@@ -1,0 +1,256 @@
+package report
+
+// errorCaptureJS runs first, in <head>: it records every script error,
+// unhandled rejection, console.error call and Content-Security-Policy
+// violation into the data-errors attribute of <html>, so that a headless
+// browser's DOM dump shows them.
+const errorCaptureJS = `
+(function () {
+  var errs = [];
+  function rec(msg) {
+    errs.push(String(msg));
+    try { document.documentElement.setAttribute("data-errors", errs.join(" | ")); } catch (e) {}
+  }
+  window.__reportError = rec;
+  window.onerror = function (msg, src, line, col) { rec(msg + " (line " + line + ":" + col + ")"); return false; };
+  window.addEventListener("unhandledrejection", function (ev) { rec("unhandled rejection: " + ev.reason); });
+  document.addEventListener("securitypolicyviolation", function (ev) { rec("blocked by policy: " + ev.violatedDirective + " " + ev.blockedURI); });
+  var ce = console.error;
+  console.error = function () { rec(Array.prototype.join.call(arguments, " ")); if (ce) { ce.apply(console, arguments); } };
+})();
+`
+
+// reportCSS is the page style: plain, print-friendly, no web fonts.
+const reportCSS = `
+:root { --ink: #1a1a1a; --muted: #555; --rule: #c8c8c8; --band: #f3f3f3; --accent: #0072b2; --warn: #d55e00; }
+* { box-sizing: border-box; }
+body { font-family: "Liberation Sans", Arial, Helvetica, sans-serif; color: var(--ink); max-width: 1100px; margin: 0 auto; padding: 0 1.2rem 3rem; line-height: 1.45; background: #fff; }
+header h1 { font-size: 1.6rem; margin: 1.2rem 0 0.2rem; }
+.sub { color: var(--muted); margin: 0 0 0.8rem; }
+nav { border-top: 1px solid var(--rule); border-bottom: 1px solid var(--rule); padding: 0.4rem 0; font-size: 0.9rem; }
+nav a { margin-right: 0.9rem; color: var(--accent); }
+h2 { font-size: 1.25rem; border-bottom: 2px solid var(--ink); padding-bottom: 0.15rem; margin-top: 2rem; }
+h3 { font-size: 1.05rem; margin: 1.4rem 0 0.4rem; }
+.headline { font-size: 1.12rem; border-left: 5px solid var(--accent); padding: 0.5rem 0.9rem; background: var(--band); }
+ul.verdicts { padding-left: 0; list-style: none; }
+ul.verdicts li { margin: 0.35rem 0; }
+.badge { display: inline-block; min-width: 8.5em; text-align: center; font-size: 0.8rem; font-weight: bold; padding: 0.05rem 0.4rem; border: 1.5px solid var(--ink); margin-right: 0.4rem; }
+.badge.robust { background: #fff; }
+.badge.sensitive { background: var(--ink); color: #fff; }
+.badge.undetermined { border-style: dashed; color: var(--muted); }
+.warnnote { color: var(--warn); font-weight: bold; }
+figure { margin: 1.2rem 0 2rem; }
+figure h3 { margin-bottom: 0.3rem; }
+svg.figure { width: 100%; max-width: 1000px; height: auto; display: block; }
+figcaption { font-size: 0.9rem; color: var(--muted); margin-top: 0.3rem; }
+.tablewrap { overflow-x: auto; margin: 0.5rem 0 1rem; }
+table { border-collapse: collapse; font-size: 0.82rem; }
+caption { text-align: left; font-weight: bold; padding: 0.2rem 0; }
+th, td { border-bottom: 1px solid var(--rule); padding: 0.2rem 0.45rem; text-align: left; vertical-align: top; }
+th { background: var(--band); cursor: pointer; white-space: nowrap; user-select: none; }
+th[aria-sort="ascending"]::after { content: " \25B2"; }
+th[aria-sort="descending"]::after { content: " \25BC"; }
+td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+td.mono { font-family: "Liberation Mono", monospace; font-size: 0.75rem; }
+tbody tr:nth-child(even) { background: #fafafa; }
+.controls { margin: 0.6rem 0; }
+.controls label { margin-right: 0.8rem; }
+select, button { font: inherit; padding: 0.1rem 0.3rem; }
+.explore { display: flex; flex-wrap: wrap; gap: 1.2rem; align-items: flex-start; }
+#teach-numbers { flex: 1 1 340px; min-width: 300px; }
+svg.teach { border: 1px solid var(--rule); background: #fff; }
+table.keynums td:first-child { color: var(--muted); }
+#teach-steps button { margin: 0.15rem; font-size: 0.8rem; border: 1px solid var(--rule); background: #fff; cursor: pointer; }
+#teach-steps button.current { border: 2px solid var(--ink); font-weight: bold; }
+pre.methods { white-space: pre-wrap; background: var(--band); padding: 0.8rem; font-size: 0.85rem; }
+ul.sentences li { margin: 0.3rem 0; }
+@media print {
+  nav, .controls, #explore { display: none; }
+  body { max-width: none; }
+  h2 { page-break-after: avoid; }
+  figure { page-break-inside: avoid; }
+}
+`
+
+// reportJS makes tables sortable and drives the extent selector. It reads
+// the data embedded in <script type="application/json" id="report-data">,
+// honours a fragment such as #extent=ID&model=NAME, and writes the shown
+// AUC into data attributes of #teach-numbers (checked by the tests).
+const reportJS = `
+(function () {
+  "use strict";
+  var rec = window.__reportError || function () {};
+  try {
+    setupSorting();
+    setupExplore();
+  } catch (e) {
+    rec("report script: " + (e && e.stack ? e.stack : e));
+  }
+  var res = (window.performance && performance.getEntriesByType) ? performance.getEntriesByType("resource").length : -1;
+  document.documentElement.setAttribute("data-resources", String(res));
+  document.documentElement.setAttribute("data-ready", "1");
+
+  function cellValue(td) {
+    var v = td.getAttribute("data-v");
+    if (v !== null && v !== "") { var n = parseFloat(v); if (!isNaN(n)) { return n; } }
+    return td.textContent.trim().toLowerCase();
+  }
+
+  function setupSorting() {
+    var tables = document.querySelectorAll("table.sortable");
+    Array.prototype.forEach.call(tables, function (tbl) {
+      if (!tbl.tHead || !tbl.tBodies.length) { return; }
+      var ths = tbl.tHead.rows[0].cells;
+      Array.prototype.forEach.call(ths, function (th, col) {
+        th.setAttribute("tabindex", "0");
+        th.title = "Click to sort";
+        function sort() {
+          var asc = th.getAttribute("aria-sort") !== "ascending";
+          Array.prototype.forEach.call(ths, function (o) { o.removeAttribute("aria-sort"); });
+          th.setAttribute("aria-sort", asc ? "ascending" : "descending");
+          var tb = tbl.tBodies[0];
+          var rows = Array.prototype.slice.call(tb.rows);
+          rows.forEach(function (r, i) { r.__i = i; });
+          rows.sort(function (a, b) {
+            var x = cellValue(a.cells[col]), y = cellValue(b.cells[col]), r;
+            if (typeof x === "number" && typeof y === "number") { r = x - y; }
+            else if (typeof x === "number") { r = -1; }
+            else if (typeof y === "number") { r = 1; }
+            else { r = x < y ? -1 : (x > y ? 1 : 0); }
+            if (r === 0) { r = a.__i - b.__i; return r; }
+            return asc ? r : -r;
+          });
+          rows.forEach(function (r) { tb.appendChild(r); });
+        }
+        th.addEventListener("click", sort);
+        th.addEventListener("keydown", function (ev) { if (ev.key === "Enter" || ev.key === " ") { ev.preventDefault(); sort(); } });
+      });
+    });
+  }
+
+  function setupExplore() {
+    var data = JSON.parse(document.getElementById("report-data").textContent);
+    var selM = document.getElementById("sel-model");
+    var selE = document.getElementById("sel-extent");
+    var svg = document.getElementById("fig-teach");
+    var box = document.getElementById("teach-numbers");
+    if (!data.models.length || !data.extents.length) {
+      document.getElementById("teach-sentence").textContent = "No scored extent to show.";
+      return;
+    }
+    data.models.forEach(function (m) { selM.appendChild(new Option(m, m)); });
+    data.extents.forEach(function (e) { selE.appendChild(new Option(e.id + " (" + e.area + " km²)", e.id)); });
+    var cells = {};
+    data.cells.forEach(function (c) { cells[c.model + "\u0000" + c.extent] = c; });
+
+    function fromHash() {
+      var h = (window.location.hash || "").replace(/^#/, "");
+      var out = {};
+      h.split("&").forEach(function (kv) {
+        var i = kv.indexOf("=");
+        if (i > 0) { out[decodeURIComponent(kv.slice(0, i))] = decodeURIComponent(kv.slice(i + 1)); }
+      });
+      return out;
+    }
+    function has(sel, v) { return Array.prototype.some.call(sel.options, function (o) { return o.value === v; }); }
+    function applyHash() {
+      var h = fromHash();
+      selM.value = (h.model && has(selM, h.model)) ? h.model : data.models[0];
+      selE.value = (h.extent && has(selE, h.extent)) ? h.extent : data.default_extent;
+      draw();
+    }
+    selM.addEventListener("change", draw);
+    selE.addEventListener("change", draw);
+    document.getElementById("btn-prev").addEventListener("click", function () { step(-1); });
+    document.getElementById("btn-next").addEventListener("click", function () { step(1); });
+    window.addEventListener("hashchange", applyHash);
+    applyHash();
+
+    function step(d) {
+      var i = selE.selectedIndex + d;
+      if (i >= 0 && i < selE.options.length) { selE.selectedIndex = i; draw(); }
+    }
+    function fx(v, n) { return (Math.round(v * Math.pow(10, n)) / Math.pow(10, n)).toFixed(n); }
+    function el(name, attrs, text) {
+      var e = document.createElementNS("http://www.w3.org/2000/svg", name);
+      for (var k in attrs) { if (Object.prototype.hasOwnProperty.call(attrs, k)) { e.setAttribute(k, attrs[k]); } }
+      if (text !== undefined) { e.textContent = text; }
+      svg.appendChild(e);
+      return e;
+    }
+    function draw() {
+      var m = selM.value, eid = selE.value;
+      var c = cells[m + "\u0000" + eid];
+      var ext = data.extents[selE.selectedIndex];
+      while (svg.firstChild) { svg.removeChild(svg.firstChild); }
+      var L = 48, T = 12, W = 296, H = 280;
+      function X(x) { return L + x * W; }
+      function Y(y) { return T + (1 - y) * H; }
+      el("rect", { x: L, y: T, width: W, height: H, fill: "#fff", stroke: "#333", "stroke-width": 1 });
+      if (data.e > 0) {
+        el("rect", { x: L, y: Y(1), width: W, height: Y(1 - data.e) - Y(1), fill: "#dedede" });
+      }
+      [0, 0.25, 0.5, 0.75, 1].forEach(function (t) {
+        el("line", { x1: X(t), y1: Y(0), x2: X(t), y2: Y(0) + 4, stroke: "#333" });
+        el("text", { x: X(t), y: Y(0) + 15, "font-size": 10, "text-anchor": "middle" }, String(t));
+        el("line", { x1: X(0) - 4, y1: Y(t), x2: X(0), y2: Y(t), stroke: "#333" });
+        el("text", { x: X(0) - 7, y: Y(t) + 3, "font-size": 10, "text-anchor": "end" }, String(t));
+      });
+      el("text", { x: X(0.5), y: Y(0) + 30, "font-size": 11, "text-anchor": "middle" }, "share of extent area predicted present");
+      el("text", { x: 12, y: Y(0.5), "font-size": 11, "text-anchor": "middle", transform: "rotate(-90 12 " + Y(0.5) + ")" }, "share of test presences");
+      el("line", { x1: X(0), y1: Y(0), x2: X(1), y2: Y(1), stroke: "#777", "stroke-dasharray": "2 3" });
+      data.extents.forEach(function (e) {
+        var o = cells[m + "\u0000" + e.id];
+        if (!o || !o.scored || e.id === eid || !o.x.length) { return; }
+        el("polyline", { points: pts(o), fill: "none", stroke: "#b5b5b5", "stroke-width": 1 });
+      });
+      var tbl = document.getElementById("teach-table");
+      while (tbl.firstChild) { tbl.removeChild(tbl.firstChild); }
+      function row(k, v) {
+        var tr = document.createElement("tr");
+        var a = document.createElement("td"); a.textContent = k;
+        var b = document.createElement("td"); b.textContent = v;
+        tr.appendChild(a); tr.appendChild(b); tbl.appendChild(tr);
+      }
+      var sent = document.getElementById("teach-sentence");
+      box.setAttribute("data-extent", eid);
+      box.setAttribute("data-model", m);
+      if (!c || !c.scored) {
+        sent.textContent = "Model " + m + " is not scored on " + eid + (c && c.reason ? ": " + c.reason : "") + ".";
+        box.setAttribute("data-auc", "");
+      } else {
+        if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
+        el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
+        sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) model " + m +
+          " has AUC " + fx(c.auc, 3) + (c.proc_ok ? " and partial ROC ratio " + fx(c.proc, 3) : "") + ". Black: this extent; grey: the same model on the other extents" +
+          (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
+        row("extent area", ext.area + " km²");
+        row("test points", String(c.test_points));
+        row("AUC", fx(c.auc, 3) + " (bootstrap SD " + fx(c.auc_sd, 3) + ")");
+        if (c.proc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.proc, 3) + " (" + fx(c.proc_low, 3) + "–" + fx(c.proc_high, 3) + ")"); }
+        if (c.threshold_ok) {
+          row("omission at minimum training presence", fx(c.omission, 3));
+          row("area predicted present at that threshold", fx(c.area_fraction, 3));
+        }
+        box.setAttribute("data-auc", String(c.auc));
+      }
+      var steps = document.getElementById("teach-steps");
+      while (steps.firstChild) { steps.removeChild(steps.firstChild); }
+      data.extents.forEach(function (e, i) {
+        var o = cells[m + "\u0000" + e.id];
+        var b = document.createElement("button");
+        b.type = "button";
+        b.textContent = e.id + ": " + (o && o.scored ? fx(o.auc, 3) : "–");
+        if (e.id === eid) { b.className = "current"; }
+        b.addEventListener("click", function () { selE.selectedIndex = i; draw(); });
+        steps.appendChild(b);
+      });
+      function pts(o) {
+        var s = [];
+        for (var i = 0; i < o.x.length; i++) { s.push(fx(X(o.x[i]), 1) + "," + fx(Y(o.y[i]), 1)); }
+        return s.join(" ");
+      }
+    }
+  }
+})();
+`

@@ -1,0 +1,239 @@
+package report
+
+import (
+	"bytes"
+	"context"
+	"html"
+	"image/png"
+	"io"
+	"net/url"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+)
+
+// findChromium returns the headless browser to use, or "".
+func findChromium() string {
+	for _, name := range []string{"/usr/bin/chromium", "chromium", "chromium-browser"} {
+		if p, err := exec.LookPath(name); err == nil {
+			return p
+		}
+	}
+	return ""
+}
+
+// chromiumArgs are the flags the brief prescribes, plus two that keep the
+// browser's own background traffic on the machine: --no-proxy-server and a
+// host resolver that resolves no name, so no request can leave even if
+// Chromium starts one by itself (it does: update checks, account lookups).
+func chromiumArgs(userDir string, extra ...string) []string {
+	args := []string{
+		"--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+		"--disable-background-networking", "--disable-component-update", "--disable-sync",
+		"--user-data-dir=" + userDir,
+		"--no-proxy-server", "--host-resolver-rules=MAP * ~NOTFOUND",
+		"--disable-features=NetworkTimeServiceQuerying,OptimizationHints,MediaRouter,Translate",
+		"--disable-domain-reliability", "--no-pings", "--disable-extensions",
+	}
+	return append(args, extra...)
+}
+
+func runChromium(t *testing.T, bin string, args []string) (stdout, stderr []byte) {
+	t.Helper()
+	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, bin, args...)
+	var out, errb bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	cmd.Env = append(os.Environ(), "HOME="+t.TempDir())
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("chromium %v: %v\n%s", args, err, tail(errb.String(), 2000))
+	}
+	return out.Bytes(), errb.Bytes()
+}
+
+func tail(s string, n int) string {
+	if len(s) > n {
+		return s[len(s)-n:]
+	}
+	return s
+}
+
+// attr returns the value of attribute name in the first start tag matching
+// the tag regexp, HTML-unescaped, and whether it was found.
+func attr(dom, tagRe, name string) (string, bool) {
+	tag := regexp.MustCompile(tagRe).FindString(dom)
+	if tag == "" {
+		return "", false
+	}
+	m := regexp.MustCompile(`\s` + regexp.QuoteMeta(name) + `="([^"]*)"`).FindStringSubmatch(tag)
+	if m == nil {
+		return "", false
+	}
+	return html.UnescapeString(m[1]), true
+}
+
+// browserOwnHosts are the hosts Chromium contacts by itself on start (update
+// checks, account lookup, time). With the resolver rule above none of these
+// resolves; they are listed so that the log check can tell them from a
+// fetch made by the page, which has no host of its own to reach.
+var browserOwnHosts = []string{"update.googleapis.com", "accounts.google.com", "clients2.google.com",
+	"clientservices.googleapis.com", "redirector.gvt1.com", "edgedl.me.gvt1.com", "optimizationguide-pa.googleapis.com"}
+
+// TestReportInChromium opens report.html from disk in headless Chromium and
+// checks:
+//   - no script error, console.error, unhandled rejection or policy
+//     violation: the page's own capture script records them into
+//     <html data-errors>, read back from --dump-dom; the Chromium log
+//     (--enable-logging=stderr --v=1) must hold no CONSOLE message;
+//   - no network: the page records performance.getEntriesByType("resource")
+//     (every fetch of an image, script, style, font or XHR) into
+//     data-resources, which must be 0; the Chromium log's
+//     NotifyBeforeURLRequest lines may name only file:, data:, about: or
+//     chrome: URLs and the browser's own background hosts (which the
+//     resolver rule makes unreachable); TestHTMLSelfContained scans the
+//     HTML for external src/href/url();
+//   - every figure's <svg> is in the DOM by id, and the selector works: the
+//     fragment #extent=<last usable extent>&model=<first model> makes the
+//     script draw that curve and write the shown AUC into data-auc, which
+//     must equal the score in the results;
+//   - a screenshot renders (kept in a temp dir and copied to
+//     $AREASWEEP_ARTEFACTS when set).
+func TestReportInChromium(t *testing.T) {
+	bin := findChromium()
+	if bin == "" {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
+		}
+		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
+	}
+	dir, r := writeSample(t)
+	model := r.Models[0].Name
+	var ext string
+	var want float64
+	for _, e := range r.Extents {
+		if e.Status != "ok" {
+			continue
+		}
+		for _, s := range r.Scores {
+			if s.Model == model && s.Extent == e.ID && s.Scored {
+				ext, want = e.ID, s.AUC
+			}
+		}
+	}
+	if ext == "" {
+		t.Fatal("sample has no scored extent")
+	}
+	page := "file://" + filepath.Join(dir, "report.html") + "#extent=" + url.QueryEscape(ext) + "&model=" + url.QueryEscape(model)
+
+	dom, logs := runChromium(t, bin, chromiumArgs(t.TempDir(), "--enable-logging=stderr", "--v=1", "--virtual-time-budget=5000", "--dump-dom", page))
+	d := string(dom)
+	if v, ok := attr(d, `<html[^>]*>`, "data-ready"); !ok || v != "1" {
+		t.Fatalf("script did not finish (data-ready=%q); DOM starts %q", v, tail(d[:min(len(d), 400)], 400))
+	}
+	if v, ok := attr(d, `<html[^>]*>`, "data-errors"); !ok || v != "" {
+		t.Errorf("page recorded errors: %q", v)
+	}
+	if v, _ := attr(d, `<html[^>]*>`, "data-resources"); v != "0" {
+		t.Errorf("page fetched %s resources, want 0", v)
+	}
+	for _, f := range append(append([]string{}, figureNames...), "teach") {
+		if !strings.Contains(d, `<svg id="fig-`+f+`"`) {
+			t.Errorf("DOM lacks figure svg#fig-%s", f)
+		}
+	}
+	box := `<div id="teach-numbers"[^>]*>`
+	if v, _ := attr(d, box, "data-extent"); v != ext {
+		t.Errorf("selector shows extent %q, want %q from the fragment", v, ext)
+	}
+	if v, _ := attr(d, box, "data-model"); v != model {
+		t.Errorf("selector shows model %q, want %q", v, model)
+	}
+	got, err := strconv.ParseFloat(mustAttr(t, d, box, "data-auc"), 64)
+	if err != nil || got != want {
+		t.Errorf("displayed AUC %v (%v), want %v from results", got, err, want)
+	}
+	teach := regexp.MustCompile(`(?s)<svg id="fig-teach"[^>]*>(.*?)</svg>`).FindStringSubmatch(d)
+	if teach == nil || !strings.Contains(teach[1], "<polyline") || !strings.Contains(teach[1], "AUC "+f3(want)) {
+		t.Error("teaching ROC curve not drawn")
+	}
+	if !strings.Contains(d, `class="current">`+ext+": "+f3(want)) {
+		t.Error("extent steps do not mark the chosen extent")
+	}
+
+	// Chromium's own log.
+	allowed := regexp.MustCompile(`^(file|data|about|chrome|chrome-untrusted|blob):`)
+	req := regexp.MustCompile(`NotifyBeforeURLRequest: (\S+)`)
+	for _, line := range strings.Split(string(logs), "\n") {
+		if strings.Contains(line, ":CONSOLE") || strings.Contains(line, "CONSOLE(") {
+			t.Errorf("console message: %s", line)
+		}
+		m := req.FindStringSubmatch(line)
+		if m == nil || allowed.MatchString(m[1]) {
+			continue
+		}
+		u, err := url.Parse(m[1])
+		if err != nil || !hostIn(u.Hostname(), browserOwnHosts) {
+			t.Errorf("network request not made by the browser itself: %s", m[1])
+		}
+	}
+
+	// Screenshot.
+	shotDir := t.TempDir()
+	shot := filepath.Join(shotDir, "screenshot.png")
+	runChromium(t, bin, chromiumArgs(t.TempDir(), "--hide-scrollbars", "--window-size=1200,2600", "--virtual-time-budget=5000", "--screenshot="+shot, page))
+	data, err := os.ReadFile(shot)
+	if err != nil {
+		t.Fatalf("no screenshot: %v", err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil || img.Bounds().Dx() != 1200 {
+		t.Fatalf("screenshot unreadable: %v", err)
+	}
+	if a := os.Getenv("AREASWEEP_ARTEFACTS"); a != "" {
+		if err := os.MkdirAll(a, 0o755); err == nil {
+			copyFile(t, shot, filepath.Join(a, "report_screenshot.png"))
+		}
+	}
+}
+
+func mustAttr(t *testing.T, dom, tagRe, name string) string {
+	t.Helper()
+	v, ok := attr(dom, tagRe, name)
+	if !ok {
+		t.Fatalf("attribute %s not found", name)
+	}
+	return v
+}
+
+func hostIn(h string, hosts []string) bool {
+	for _, x := range hosts {
+		if h == x {
+			return true
+		}
+	}
+	return false
+}
+
+func copyFile(t *testing.T, from, to string) {
+	in, err := os.Open(from)
+	if err != nil {
+		t.Errorf("artefact: %v", err)
+		return
+	}
+	defer in.Close()
+	out, err := os.Create(to)
+	if err != nil {
+		t.Errorf("artefact: %v", err)
+		return
+	}
+	defer out.Close()
+	if _, err := io.Copy(out, in); err != nil {
+		t.Errorf("artefact: %v", err)
+	}
+}

@@ -1,0 +1,240 @@
+package report
+
+import (
+	"bytes"
+	"image/png"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// writeSample analyses the sample and writes the report into a temp dir.
+func writeSample(t testing.TB) (string, *Results) {
+	t.Helper()
+	r := analyzedSample(t)
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	return dir, r
+}
+
+var figureNames = []string{"metrics_vs_area", "roc_curves", "map", "rings"}
+
+// TestWriteFiles checks that every file is there, the PNGs decode at a
+// readable size, no temp files are left, and a second write is
+// byte-identical (deterministic output).
+func TestWriteFiles(t *testing.T) {
+	dir, r := writeSample(t)
+	want := []string{"report.html", "methods.md"}
+	for _, f := range figureNames {
+		want = append(want, filepath.Join("figures", f+".svg"), filepath.Join("figures", f+".png"))
+	}
+	first := map[string][]byte{}
+	for _, name := range want {
+		data, err := os.ReadFile(filepath.Join(dir, name))
+		if err != nil {
+			t.Fatalf("missing %s: %v", name, err)
+		}
+		first[name] = data
+		if strings.HasSuffix(name, ".png") {
+			img, err := png.Decode(bytes.NewReader(data))
+			if err != nil {
+				t.Fatalf("%s: %v", name, err)
+			}
+			if b := img.Bounds(); b.Dx() < 800 || b.Dy() < 300 {
+				t.Errorf("%s is only %dx%d pixels", name, b.Dx(), b.Dy())
+			}
+		}
+		if strings.HasSuffix(name, ".svg") && !bytes.Contains(data, []byte("<svg")) {
+			t.Errorf("%s is not an SVG", name)
+		}
+	}
+	for _, sub := range []string{dir, filepath.Join(dir, "figures")} {
+		ents, _ := os.ReadDir(sub)
+		for _, e := range ents {
+			if strings.Contains(e.Name(), ".tmp-") {
+				t.Errorf("temp file left: %s", e.Name())
+			}
+		}
+	}
+	// Same Results, second folder: identical bytes.
+	dir2 := t.TempDir()
+	if err := Write(dir2, r); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range want {
+		data, _ := os.ReadFile(filepath.Join(dir2, name))
+		if !bytes.Equal(data, first[name]) {
+			t.Errorf("%s differs between two writes of the same results", name)
+		}
+	}
+}
+
+// TestWriteErrors covers the contract violations a caller can make.
+func TestWriteErrors(t *testing.T) {
+	r := loadSample(t)
+	cases := []struct {
+		name string
+		dir  string
+		r    *Results
+		want string
+	}{
+		{"nil results", t.TempDir(), nil, "nil results"},
+		{"not analysed", t.TempDir(), r, "call Analyze first"},
+		{"missing folder", filepath.Join(t.TempDir(), "nope"), analyzedSample(t), "output folder"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			err := Write(c.dir, c.r)
+			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.HasPrefix(err.Error(), "report: ") {
+				t.Errorf("err = %v, want %q", err, c.want)
+			}
+		})
+	}
+}
+
+// urlAttr finds src/href/xlink:href attribute values and CSS url(...).
+var urlAttr = regexp.MustCompile(`(?i)(?:\s(?:src|href|xlink:href|action|poster|srcset)\s*=\s*["']?([^"'\s>]*))|url\(\s*["']?([^"')]*)`)
+
+// TestHTMLSelfContained checks the static page: no external URL in any
+// src/href/url(), a Content-Security-Policy forbidding fetches, every figure
+// inlined by id, the data block and the headline present.
+func TestHTMLSelfContained(t *testing.T) {
+	dir, r := writeSample(t)
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	html := string(page)
+	for _, m := range urlAttr.FindAllStringSubmatch(html, -1) {
+		v := m[1] + m[2]
+		if v == "" || strings.HasPrefix(v, "#") || strings.HasPrefix(v, "data:") {
+			continue
+		}
+		t.Errorf("external or relative reference in report.html: %q", m[0])
+	}
+	for _, bad := range []string{"<link", "@import", "<iframe", "<object", "<embed"} {
+		if strings.Contains(html, bad) {
+			t.Errorf("report.html contains %s", bad)
+		}
+	}
+	if !strings.Contains(html, `Content-Security-Policy" content="default-src 'none'`) {
+		t.Error("no Content-Security-Policy blocking fetches")
+	}
+	for _, f := range figureNames {
+		if !strings.Contains(html, `<svg id="fig-`+f+`"`) {
+			t.Errorf("figure %s not inlined", f)
+		}
+	}
+	for _, id := range []string{`id="fig-teach"`, `id="sel-model"`, `id="sel-extent"`, `<script type="application/json" id="report-data">`, `class="sortable"`} {
+		if !strings.Contains(html, id) {
+			t.Errorf("report.html lacks %s", id)
+		}
+	}
+	if !strings.Contains(html, htmlEscape(r.Sensitivity.Headline)) {
+		t.Error("headline missing")
+	}
+	if strings.Index(html, `id="summary"`) > strings.Index(html, `id="figures"`) || strings.Index(html, `id="figures"`) > strings.Index(html, `id="scores"`) {
+		t.Error("order must be summary, figures, tables")
+	}
+	// Every extent, including skipped ones, and every input checksum is listed.
+	for _, e := range r.Extents {
+		if !strings.Contains(html, ">"+e.ID+"<") {
+			t.Errorf("extent %s not listed", e.ID)
+		}
+	}
+	for _, in := range r.Inputs {
+		if !strings.Contains(html, in.SHA256) {
+			t.Errorf("checksum of %s not listed", in.Path)
+		}
+	}
+	if m := regexp.MustCompile(`(^|[^A-Za-z])NaN|[+-]Inf|Infinity`).FindString(html); m != "" {
+		t.Errorf("NaN/Inf in report: %q", m)
+	}
+}
+
+// TestMethodsText checks that methods.md carries this run's numbers.
+func TestMethodsText(t *testing.T) {
+	dir, r := writeSample(t)
+	data, err := os.ReadFile(filepath.Join(dir, "methods.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(data)
+	auc := r.Sensitivity.findSpread("auc", "good")
+	want := []string{
+		"## Methods", "## Reply to a reviewer",
+		r.Software.Name + " " + r.Software.Version,
+		"E = 0.05 and 0.1", strconv.Itoa(r.Settings.Iterations) + " bootstrap", "50% of the test records",
+		"seed " + strconv.FormatUint(r.Seed, 10),
+		"base (study region polygon; " + fmtArea(r.Extents[0].AreaKm2) + " km²)",
+		"AUC of good ranged " + f3(auc.Min) + "–" + f3(auc.Max),
+		signed3(auc.Slope.PerDoubling) + " per doubling",
+		"evaluation aids",
+	}
+	for _, w := range want {
+		if !strings.Contains(md, w) {
+			t.Errorf("methods.md lacks %q", w)
+		}
+	}
+}
+
+// TestMaskEdges checks the outline of a small mask against a hand count.
+func TestMaskEdges(t *testing.T) {
+	// 3x3 grid, an L-shaped mask of 3 cells:
+	//   X . .
+	//   X X .
+	//   . . .
+	// Perimeter of the L = 8 unit edges (hand count).
+	m := []bool{true, false, false, true, true, false, false, false, false}
+	var total float64
+	for _, s := range maskEdges(m, 3, 3) {
+		total += (s[2] - s[0]) + (s[3] - s[1])
+	}
+	if total != 8 {
+		t.Errorf("outline length %v, want 8", total)
+	}
+	// A full grid is outlined by the grid border: 4 merged runs of 3.
+	full := []bool{true, true, true, true, true, true, true, true, true}
+	if segs := maskEdges(full, 3, 3); len(segs) != 4 {
+		t.Errorf("full mask gives %d runs, want 4", len(segs))
+	}
+}
+
+// TestFormatting checks the number formats used in sentences.
+func TestFormatting(t *testing.T) {
+	cases := []struct{ got, want string }{
+		{fmtArea(84922), "84,900"},
+		{fmtArea(231212.4), "231,000"},
+		{fmtArea(41.23), "41.2"},
+		{fmtArea(1234), "1,230"},
+		{areaRange(28232, 231212), "from 28.2 to 231 thousand km²"},
+		{areaRange(1200, 40000), "from 1.2 to 40 thousand km²"},
+		{areaRange(120, 9800), "from 120 to 9,800 km²"},
+		{signed3(0.0312), "+0.031"},
+		{signed3(-0.0004), "+0.000"},
+		{pct(0.714), "71%"},
+		{shortArea(50000), "50k"},
+		{shortArea(2e6), "2M"},
+	}
+	for _, c := range cases {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+}
+
+func BenchmarkWrite_3models10extents(b *testing.B) {
+	r := analyzedSample(b)
+	dir := b.TempDir()
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := Write(dir, r); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
