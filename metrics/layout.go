@@ -104,10 +104,11 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 	// Refine the grid until about 4 buckets per layout value fall on the
 	// layout values' span (clamped to the histogram range), so that most
 	// buckets hold at most two candidates.
-	covered := 1.0
+	covered := 1.0 // share of the histogram range spanned by the values
 	if m >= 2 {
-		lo, hi := math.Max(d[0], histMin), math.Min(d[m-1], histMax)
-		covered = math.Max((hi-lo)/span, 1/float64(histBins))
+		if lo, hi := math.Max(d[0], histMin), math.Min(d[m-1], histMax); hi > lo {
+			covered = math.Max((hi-lo)/span, 1/float64(histBins))
+		}
 	}
 	for float64(histBins<<l.shift)*covered < 4*float64(m) && histBins<<(l.shift+1) <= maxLookup &&
 		!math.IsInf(hScale*float64(uint64(1)<<(l.shift+1)), 0) {

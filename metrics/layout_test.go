@@ -18,7 +18,8 @@ func refLocate(d []float64, v float64) int {
 	return 2 * j
 }
 
-// refHist is the fine-histogram bin by definition, with clamping.
+// refHist is the fine-histogram bin by definition, floor((v-lo)*n/(hi-lo))
+// clamped to [0, n-1], with the scale rounded once as NewLayout does.
 func refHist(lo, hi float64, n int, v float64) int {
 	if !(v >= lo) {
 		return 0
@@ -26,7 +27,7 @@ func refHist(lo, hi float64, n int, v float64) int {
 	if v >= hi {
 		return n - 1
 	}
-	k := int(math.Floor((v - lo) / (hi - lo) * float64(n)))
+	k := int((v - lo) * (float64(n) / (hi - lo)))
 	return max(0, min(n-1, k))
 }
 
@@ -60,37 +61,53 @@ func TestLocate(t *testing.T) {
 		{"tiny span", []float64{1, math.Nextafter(1, 2), math.Nextafter(math.Nextafter(1, 2), 2)}},
 		{"subnormal span", []float64{0, 5e-324, 1e-323}},
 	}
-	for _, tc := range tests {
-		t.Run(tc.name, func(t *testing.T) {
-			l, err := NewLayout(tc.values, -0.5, 1.5, 64)
-			if err != nil {
-				t.Fatal(err)
-			}
-			d := l.Values()
-			if !slices.IsSorted(d) || len(slices.Compact(slices.Clone(d))) != len(d) || l.Bins() != 2*len(d)+1 {
-				t.Fatalf("values not sorted distinct: %v", d)
-			}
-			probe := slices.Clone(d)
-			for _, v := range d {
-				probe = append(probe, math.Nextafter(v, math.Inf(-1)), math.Nextafter(v, math.Inf(1)))
-			}
-			for i := 0; i < 2000; i++ {
-				probe = append(probe, r.Float64()*2.2-0.6)
-			}
-			probe = append(probe, math.Inf(1), math.Inf(-1), -2, 3, 1.5, -0.5, math.MaxFloat64, -math.MaxFloat64)
-			for _, v := range probe {
-				bin, hist := l.Locate(v)
-				if want := refLocate(d, v); bin != want {
-					t.Fatalf("Locate(%v) bin %d, want %d", v, bin, want)
+	ranges := []struct {
+		name   string
+		lo, hi float64
+		bins   int
+	}{
+		{"range covering", -0.5, 1.5, 64},
+		{"range narrow", 0.4, 0.6, 16},
+		{"range wide", -1000, 1000, 100},
+	}
+	for _, rg := range ranges {
+		for _, tc := range tests {
+			t.Run(rg.name+"/"+tc.name, func(t *testing.T) {
+				l, err := NewLayout(tc.values, rg.lo, rg.hi, rg.bins)
+				if err != nil {
+					t.Fatal(err)
 				}
-				if want := refHist(-0.5, 1.5, 64, v); hist != want && math.Abs((v+0.5)*32-math.Round((v+0.5)*32)) > 1e-9 {
-					t.Fatalf("Locate(%v) hist %d, want %d", v, hist, want)
+				d := l.Values()
+				if !slices.IsSorted(d) || len(slices.Compact(slices.Clone(d))) != len(d) || l.Bins() != 2*len(d)+1 {
+					t.Fatalf("values not sorted distinct: %v", d)
 				}
-			}
-			if bin, hist := l.Locate(math.NaN()); bin != 0 || hist != 0 {
-				t.Errorf("Locate(NaN) = %d, %d, want 0, 0", bin, hist)
-			}
-		})
+				probe := slices.Clone(d)
+				for _, v := range d {
+					probe = append(probe, math.Nextafter(v, math.Inf(-1)), math.Nextafter(v, math.Inf(1)))
+				}
+				for i := 0; i < 2000; i++ {
+					probe = append(probe, r.Float64()*2.2-0.6)
+				}
+				probe = append(probe, math.Inf(1), math.Inf(-1), -2, 3, 1.5, -0.5, rg.lo, rg.hi, math.MaxFloat64, -math.MaxFloat64)
+				w := (rg.hi - rg.lo) / float64(rg.bins)
+				for k := 0; k <= rg.bins; k++ { // probe every bin edge
+					e := rg.lo + float64(k)*w
+					probe = append(probe, e, math.Nextafter(e, math.Inf(-1)), math.Nextafter(e, math.Inf(1)))
+				}
+				for _, v := range probe {
+					bin, hist := l.Locate(v)
+					if want := refLocate(d, v); bin != want {
+						t.Fatalf("Locate(%v) bin %d, want %d", v, bin, want)
+					}
+					if want := refHist(rg.lo, rg.hi, rg.bins, v); hist != want {
+						t.Fatalf("Locate(%v) hist %d, want %d", v, hist, want)
+					}
+				}
+				if bin, hist := l.Locate(math.NaN()); bin != 0 || hist != 0 {
+					t.Errorf("Locate(NaN) = %d, %d, want 0, 0", bin, hist)
+				}
+			})
+		}
 	}
 }
 

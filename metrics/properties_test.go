@@ -630,3 +630,45 @@ func TestCurveThinning(t *testing.T) {
 		}
 	}
 }
+
+// TestThresholdTrain: thresholds taken from ThresholdTrain are those Score
+// gives when those values are the training presences, while AUCTrain still
+// comes from the train argument (by construction).
+func TestThresholdTrain(t *testing.T) {
+	all := []float64{0.2, 0.35, 0.5, 0.6, 0.8, 0.9}
+	inside := []float64{0.6, 0.8, 0.9}
+	test := []float64{0.3, 0.5, 0.7, 0.9}
+	vals := append(append(append([]float64{}, all...), test...), 0.7)
+	l, err := NewLayout(vals, 0, 1, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := l.NewAccumulator()
+	for i := 0; i < 100; i++ {
+		a.Add(float64(i)/100, int64(1+i%3))
+	}
+	viaAll, err := Score(a, all, test, Settings{Iterations: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	viaInside, err := Score(a, inside, test, Settings{Iterations: 5, ThresholdTrain: all})
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain, err := Score(a, inside, test, Settings{Iterations: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(viaAll.Thresholds, viaInside.Thresholds) {
+		t.Errorf("thresholds %+v, want %+v", viaInside.Thresholds, viaAll.Thresholds)
+	}
+	if viaInside.AUCTrain != plain.AUCTrain {
+		t.Errorf("AUCTrain %v changed by ThresholdTrain (want %v)", viaInside.AUCTrain, plain.AUCTrain)
+	}
+	if viaInside.Thresholds[0].Value != 0.2 || plain.Thresholds[0].Value != 0.6 {
+		t.Errorf("MTP %v and %v, want 0.2 (all) and 0.6 (inside)", viaInside.Thresholds[0].Value, plain.Thresholds[0].Value)
+	}
+	if _, err := Score(a, inside, test, Settings{ThresholdTrain: []float64{0.123}}); err == nil {
+		t.Error("a ThresholdTrain value outside the layout was accepted")
+	}
+}

@@ -143,7 +143,19 @@ func Score(a *Accumulator, train, test []float64, s Settings) (Scores, error) {
 
 	sc.PartialROC, sc.AUCBootSD = partialROC(tp, s)
 
-	sc.Thresholds = thresholds(cum, tp, train, trainIdx, s.FixedThresholds, fixedIdx)
+	thTrain, thIdx := train, trainIdx
+	if s.ThresholdTrain != nil {
+		for i, v := range s.ThresholdTrain {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return Scores{}, fmt.Errorf("metrics: Score: ThresholdTrain[%d] has non-finite value %v", i, v)
+			}
+		}
+		if thIdx, err = layoutIndices(l, s.ThresholdTrain, "threshold training presence"); err != nil {
+			return Scores{}, err
+		}
+		thTrain = s.ThresholdTrain
+	}
+	sc.Thresholds = thresholds(cum, tp, thTrain, thIdx, s.FixedThresholds, fixedIdx)
 
 	sortedTest := slices.Clone(test)
 	slices.Sort(sortedTest)

@@ -38,6 +38,14 @@ type Settings struct {
 	// presence thresholds. Each must also be passed to NewLayout so that the
 	// area at or above it is exact.
 	FixedThresholds []float64
+	// ThresholdTrain, when not nil, are the training presence values the
+	// minimum and 10th-percentile training presence thresholds are taken
+	// from, instead of the train values passed to Score. A caller scoring
+	// one model on many extents passes all of the model's training values
+	// here, so that the thresholds are properties of the model, the same on
+	// every extent, while AUCTrain still uses the training presences inside
+	// the extent. Each value must be a layout value.
+	ThresholdTrain []float64
 	// BoyceWidth is the Boyce moving-window width as a fraction of the
 	// extent's value range, in (0,1] (0 means 0.1).
 	BoyceWidth float64

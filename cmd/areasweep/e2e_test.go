@@ -111,7 +111,8 @@ func newSmallStudy(t *testing.T) *smallStudy {
 			if c >= 44 && r >= 28 {
 				v = math.NaN()
 			}
-			s.vals[r*s.w+c] = v
+			// As stored in the Float32 raster.
+			s.vals[r*s.w+c] = float64(float32(v))
 		}
 	}
 	s.model = filepath.Join(s.dir, "model.tif")
@@ -289,6 +290,29 @@ func TestRunAgainstBruteForce(t *testing.T) {
 				t.Errorf("%s: scored without test points", e.ID)
 			}
 			continue
+		}
+		// Minimum training presence: from all scored training points, the
+		// same on every extent; omission and area fraction by brute force.
+		mtp := math.Inf(1)
+		for _, p := range res.Points {
+			if p.Role == "train" && p.Status == "scored" {
+				mtp = math.Min(mtp, s.vals[p.Row*s.w+p.Col])
+			}
+		}
+		omitted, above := 0, 0.0
+		for _, v := range pres {
+			if v < mtp {
+				omitted++
+			}
+		}
+		for i, v := range vals {
+			if v >= mtp {
+				above += w[i]
+			}
+		}
+		if th := sc.Thresholds[0]; th.Name != "minimum_training_presence" || th.Value != mtp ||
+			th.Omission != float64(omitted)/float64(len(pres)) || math.Abs(th.AreaFraction-above/area) > 1e-9 {
+			t.Errorf("%s: MTP threshold %+v; brute force value %v omission %v area fraction %v", e.ID, th, mtp, float64(omitted)/float64(len(pres)), above/area)
 		}
 		want := bruteAUC(pres, vals, w)
 		if !sc.Scored || math.Abs(sc.AUC-want) > 1e-9 {

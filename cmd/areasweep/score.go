@@ -81,6 +81,15 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		s.res.Preview = s.preview(pv, stats)
 	}
 	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds}
+	// Training-presence thresholds come from all of the model's scored
+	// training points, so they are the same on every extent (as the
+	// omission lists are); AUCTrain uses the training points inside each.
+	set.ThresholdTrain = []float64{}
+	for j, p := range s.points {
+		if p.Status == "scored" && p.Role == "train" && valid[j] {
+			set.ThresholdTrain = append(set.ThresholdTrain, vals[j])
+		}
+	}
 	// Presence values per extent: only points inside the extent count.
 	presence := func(k int, role string) []float64 {
 		bit := uint64(1) << uint(k)
