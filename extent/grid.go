@@ -17,10 +17,16 @@ var registerOnce sync.Once
 
 // Register makes GDAL's drivers available. It is safe to call many times.
 // GDAL's auxiliary-file machinery is switched off first, so that reading a
-// user's raster never writes a .aux.xml beside it.
+// user's raster never writes a .aux.xml beside it, and the GeoPackage
+// timestamp is fixed (OGR_CURRENT_DATE) so outputs are reproducible.
 func Register() {
 	registerOnce.Do(func() {
 		os.Setenv("GDAL_PAM_ENABLED", "NO")
+		// GeoPackages we write carry this date instead of the clock's, so
+		// the same run writes the same bytes (GDAL GPKG driver option).
+		if os.Getenv("OGR_CURRENT_DATE") == "" {
+			os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
+		}
 		godal.RegisterAll()
 	})
 }

@@ -398,6 +398,13 @@ func TestRunReproducible(t *testing.T) {
 	if !bytes.Equal(got[0], got[1]) {
 		t.Error("results.json differs between --workers 1 and --workers 2")
 	}
+	for _, f := range []string{"extents.gpkg", "scores.csv", "report.html"} {
+		a, _ := os.ReadFile(filepath.Join(s.dir, "out1", f))
+		b, _ := os.ReadFile(filepath.Join(s.dir, "out2", f))
+		if len(a) == 0 || !bytes.Equal(a, b) {
+			t.Errorf("%s differs between --workers 1 and --workers 2 (or is empty)", f)
+		}
+	}
 	var any map[string]any
 	if err := json.Unmarshal(got[0], &any); err != nil {
 		t.Fatal(err)

@@ -74,6 +74,11 @@ func Write(dir string, seed uint64) (Files, error) {
 		return Files{}, fmt.Errorf("scenario: create directory: %w", err)
 	}
 	registerOnce.Do(godal.RegisterAll)
+	// A fixed GeoPackage timestamp (GDAL's OGR_CURRENT_DATE) makes the
+	// GeoPackages byte-identical for the same seed.
+	if os.Getenv("OGR_CURRENT_DATE") == "" {
+		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
+	}
 
 	sc := newScene(seed)
 	f := Files{
