@@ -22,4 +22,8 @@ fi
 echo "== go vet"
 go vet ./...
 echo "== go test"
+# Test artefacts (the report screenshot from the browser test) are kept here.
+export AREASWEEP_ARTEFACTS="$PWD/test-artefacts"
+mkdir -p "$AREASWEEP_ARTEFACTS"
 go test -count=1 ./...
+echo "test artefacts: $AREASWEEP_ARTEFACTS"

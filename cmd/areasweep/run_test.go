@@ -1,0 +1,92 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// TestRunFlags checks argv -> RunOptions: defaults, flags, the study file
+// under the flags, and validation messages (by construction).
+func TestRunFlags(t *testing.T) {
+	dir := t.TempDir()
+	study := filepath.Join(dir, "study.yaml")
+	os.WriteFile(study, []byte("model:\n  - a=a.tif\noccurrences: occ.csv\nregion: r.gpkg\ne: [0.1, 0.2]\niterations: 77\nregion-buffers: [-10, 20]\nseed: 5\n"), 0o644)
+	cases := []struct {
+		name  string
+		args  []string
+		check func(t *testing.T, o *RunOptions)
+		err   string
+	}{
+		{"defaults", []string{"--model", "m=x.tif", "--occurrences", "o.csv", "--region", "r.gpkg"}, func(t *testing.T, o *RunOptions) {
+			if o.Iterations != 1000 || o.Fraction != 0.5 || !reflect.DeepEqual(o.E, []float64{0.05}) || o.Out != "areasweep-out" {
+				t.Errorf("defaults %+v", o)
+			}
+		}, ""},
+		{"study file", []string{"--study", study}, func(t *testing.T, o *RunOptions) {
+			if o.Iterations != 77 || o.Seed != 5 || !reflect.DeepEqual(o.E, []float64{0.1, 0.2}) || !reflect.DeepEqual(o.RegionBuffers, []float64{-10, 20}) {
+				t.Errorf("study values not applied: %+v", o)
+			}
+			if o.Models[0] != "a="+filepath.Join(dir, "a.tif") || o.Occurrences != filepath.Join(dir, "occ.csv") {
+				t.Errorf("paths not resolved against the study file: %v %s", o.Models, o.Occurrences)
+			}
+		}, ""},
+		{"flags override study", []string{"--study", study, "--iterations", "9", "--e", "0.3", "--region-buffers=-5,5"}, func(t *testing.T, o *RunOptions) {
+			if o.Iterations != 9 || !reflect.DeepEqual(o.E, []float64{0.3}) || !reflect.DeepEqual(o.RegionBuffers, []float64{-5, 5}) || o.Seed != 5 {
+				t.Errorf("override %+v", o)
+			}
+		}, ""},
+		{"no model", []string{"--occurrences", "o.csv", "--region", "r.gpkg"}, nil, "no model given"},
+		{"duplicate model", []string{"--model", "m=a.tif", "--model", "m=b.tif", "--occurrences", "o", "--region", "r"}, nil, "given twice"},
+		{"bad fraction", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--fraction", "1.5"}, nil, "--fraction 1.5 is outside (0,1]"},
+		{"negative point buffer", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--point-buffers=-5"}, nil, "must be positive"},
+		{"unknown study key", []string{"--study", write(t, dir, "bad.yaml", "modle: x\n")}, nil, "modle"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var got *RunOptions
+			var out, errOut bytes.Buffer
+			cmd := newRunCmd(&IO{Out: &out, ErrOut: &errOut}, func(o *RunOptions) error { got = o; return nil })
+			cmd.SetArgs(c.args)
+			cmd.SetOut(&out)
+			cmd.SetErr(&errOut)
+			err := cmd.Execute()
+			if c.err != "" {
+				if err == nil || !strings.Contains(err.Error(), c.err) {
+					t.Fatalf("error %v, want %q", err, c.err)
+				}
+				if _, ok := err.(inputError); !ok {
+					t.Errorf("error %v is not an input error (exit 2)", err)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			c.check(t, got)
+		})
+	}
+}
+
+func write(t *testing.T, dir, name, body string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestHelpHasExamples: every command's --help shows a worked example.
+func TestHelpHasExamples(t *testing.T) {
+	for _, name := range []string{"run", "extents", "report", "demo", "version"} {
+		var out bytes.Buffer
+		code := Main([]string{name, "--help"}, nil, &out, &out)
+		if code != 0 || !strings.Contains(out.String(), "Examples:") || !strings.Contains(out.String(), "areasweep "+name) {
+			t.Errorf("%s --help (exit %d) has no worked example:\n%s", name, code, out.String())
+		}
+	}
+}
