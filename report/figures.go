@@ -257,19 +257,25 @@ func metricsFigure(r *Results) figure {
 			}
 			plots[k/cols][k%cols] = p
 		}
-		tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Points(14), PadY: vg.Points(12),
-			PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(8)}
-		canv := plot.Align(plots, tiles, dc)
-		for j := range plots {
-			for i, p := range plots[j] {
-				if p != nil {
-					p.Draw(canv[j][i])
-				}
-			}
-		}
+		drawTiles(plots, rows, cols, dc)
 		return nil
 	}
 	return f
+}
+
+// drawTiles aligns a rows x cols grid of panels on dc and draws them;
+// nil panels leave their tile empty.
+func drawTiles(plots [][]*plot.Plot, rows, cols int, dc draw.Canvas) {
+	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Points(14), PadY: vg.Points(12),
+		PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(8)}
+	canv := plot.Align(plots, tiles, dc)
+	for j := range plots {
+		for i, p := range plots[j] {
+			if p != nil {
+				p.Draw(canv[j][i])
+			}
+		}
+	}
 }
 
 func sortedByArea(areas []float64) []int {
@@ -384,16 +390,7 @@ func rocFigure(r *Results) figure {
 			p.Legend.YOffs = vg.Points(2)
 			plots[i/cols][i%cols] = p
 		}
-		tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Points(14), PadY: vg.Points(12),
-			PadTop: vg.Points(4), PadBottom: vg.Points(4), PadLeft: vg.Points(4), PadRight: vg.Points(8)}
-		canv := plot.Align(plots, tiles, dc)
-		for j := range plots {
-			for i, p := range plots[j] {
-				if p != nil {
-					p.Draw(canv[j][i])
-				}
-			}
-		}
+		drawTiles(plots, rows, cols, dc)
 		return nil
 	}
 	return f

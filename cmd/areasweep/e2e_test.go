@@ -624,3 +624,36 @@ func checkGeoPackage(t *testing.T, path string, res *report.Results, cellDeg2 fl
 		t.Errorf("extents.gpkg has %d features, want %d", n, len(want))
 	}
 }
+
+// TestExtentsCommand: 'extents' writes the family only, with the same
+// members and cells as a full run.
+func TestExtentsCommand(t *testing.T) {
+	s := newSmallStudy(t)
+	out := filepath.Join(s.dir, "fam")
+	args := s.args(out)
+	args[0] = "extents"
+	so, se, code := runBin(t, args...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	if !strings.Contains(so, "region_150km") || !strings.Contains(so, "extents.gpkg") {
+		t.Errorf("summary table missing from stdout: %q", so)
+	}
+	csvb, err := os.ReadFile(filepath.Join(out, "extents.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(filepath.Join(out, "results.json")); err == nil {
+		t.Error("extents wrote results.json")
+	}
+	full := filepath.Join(s.dir, "full")
+	if _, se, code := runBin(t, s.args(full)...); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, se)
+	}
+	res := loadResults(t, full)
+	for _, e := range res.Extents {
+		if !strings.Contains(string(csvb), fmt.Sprintf("%s,%s,", e.ID, e.Kind)) || !strings.Contains(string(csvb), fmt.Sprintf(",%d,", e.Cells)) {
+			t.Errorf("extents.csv lacks %s with %d cells", e.ID, e.Cells)
+		}
+	}
+}

@@ -19,15 +19,7 @@ check the family before a full run. It takes the same flags and study file as ru
     --region-buffers=-50,100,500 --out family-check
   areasweep extents --study study.yaml --out family-check --force`,
 		Args: cobra.NoArgs,
-		RunE: func(c *cobra.Command, args []string) error {
-			if err := opts.resolve(c.Flags()); err != nil {
-				return badInput(err)
-			}
-			if runF != nil {
-				return runF(&opts)
-			}
-			return sweep(&opts)
-		},
+		RunE: sweepE(&opts, runF),
 	}
 	bindRunFlags(cmd.Flags(), &opts)
 	return cmd

@@ -88,18 +88,25 @@ and a run log into --out. Settings come from flags or from a study file (--study
 keys are the flag names; flags given on the command line override the file.`,
 		Example: runExample,
 		Args:    cobra.NoArgs,
-		RunE: func(c *cobra.Command, args []string) error {
-			if err := opts.resolve(c.Flags()); err != nil {
-				return badInput(err)
-			}
-			if runF != nil {
-				return runF(&opts)
-			}
-			return sweep(&opts)
-		},
+		RunE:    sweepE(&opts, runF),
 	}
 	bindRunFlags(cmd.Flags(), &opts)
 	return cmd
+}
+
+// sweepE is the RunE of the commands that sweep (run, extents): it merges
+// the study file under the flags, validates, and runs runF (tests) or the
+// sweep.
+func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command, []string) error {
+	return func(c *cobra.Command, args []string) error {
+		if err := opts.resolve(c.Flags()); err != nil {
+			return badInput(err)
+		}
+		if runF != nil {
+			return runF(opts)
+		}
+		return sweep(opts)
+	}
 }
 
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
