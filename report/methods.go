@@ -165,7 +165,7 @@ func resultNumbers(r *Results) string {
 		out += fmt.Sprintf(" Over the %d extents scored for every model, the extent accounted for %s of the sum of squares of AUC, the model for %s and the non-additive part for %s",
 			len(d.Extents), pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
 		if d.KendallWDefined {
-			out += fmt.Sprintf("; Kendall's W of the model rankings was %s (chi-square = %s, df = %d, p = %s)", f3(d.KendallW), f3(d.ChiSquare), d.DF, fmtP(d.PValue))
+			out += fmt.Sprintf("; Kendall's W of the model rankings was %s (chi-square = %s, df = %d, %s)", f3(d.KendallW), f3(d.ChiSquare), d.DF, fmtPText(d.PValue))
 		}
 		out += "."
 	}
@@ -177,11 +177,20 @@ func resultNumbers(r *Results) string {
 }
 
 // fmtP formats a p-value.
+// fmtP formats a p-value for a table cell: "< 0.001" or "0.042".
 func fmtP(p float64) string {
 	if p < 0.001 {
 		return "< 0.001"
 	}
 	return f3(p)
+}
+
+// fmtPText formats a p-value for prose: "p < 0.001" or "p = 0.042".
+func fmtPText(p float64) string {
+	if p < 0.001 {
+		return "p < 0.001"
+	}
+	return "p = " + f3(p)
 }
 
 // reviewerText answers "is the score a property of the model or of the
@@ -219,7 +228,7 @@ func reviewerText(r *Results) string {
 		}
 	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s changed with the extent by more than its bootstrap noise or our cut-off of %g", upperFirst(joinList(sensitive)), RobustAbsRange)
+		fmt.Fprintf(&b, "%s changed with the extent by more than their bootstrap noise or our cut-off of %g", upperFirst(joinList(sensitive)), RobustAbsRange)
 		if len(robust) > 0 {
 			fmt.Fprintf(&b, ", while %s did not", joinList(robust))
 		}

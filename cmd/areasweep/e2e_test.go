@@ -373,6 +373,10 @@ func TestRunAgainstBruteForce(t *testing.T) {
 	}
 	_ = test
 	checkGeoPackage(t, filepath.Join(out, "extents.gpkg"), res, 0.25*0.25)
+	// Reading the inputs must not write beside them (GDAL .aux.xml files).
+	if side, _ := filepath.Glob(filepath.Join(s.dir, "*.aux.xml")); len(side) > 0 {
+		t.Errorf("the run wrote beside its inputs: %v", side)
+	}
 	for _, f := range []string{"results.json", "scores.csv", "extents.gpkg", "run.log", "omitted_points.gpkg"} {
 		if _, err := os.Stat(filepath.Join(out, f)); err != nil {
 			t.Errorf("output %s missing: %v", f, err)
