@@ -263,6 +263,15 @@ func metricsFigure(r *Results) figure {
 	return f
 }
 
+// ringLabel names the ring that ends at extent id, broken after the first
+// underscore so that long ids do not run into their neighbours.
+func ringLabel(id string) string {
+	if i := strings.Index(id, "_"); i > 0 {
+		id = id[:i+1] + "\n" + id[i+1:]
+	}
+	return "to " + id
+}
+
 // drawTiles aligns a rows x cols grid of panels on dc and draws them;
 // nil panels leave their tile empty.
 func drawTiles(plots [][]*plot.Plot, rows, cols int, dc draw.Canvas) {
@@ -576,7 +585,14 @@ func mapFigure(r *Results) (figure, bool) {
 			for q := range segs {
 				segs[q] = [4]float64{west + segs[q][0]*cw, north - segs[q][1]*ch, west + segs[q][2]*cw, north - segs[q][3]*ch}
 			}
-			o := &outline{segs: segs, ls: draw.LineStyle{Color: okabeIto[(k+1)%len(okabeIto)], Width: vg.Points(1.3), Dashes: dashes[k%len(dashes)]}}
+			// Colour cycles every 8 extents and the dash pattern shifts by one
+			// each cycle, so no two of up to 64 outlines share both; the base
+			// region is drawn heavier.
+			width := vg.Points(1.3)
+			if ex.ID == "base" {
+				width = vg.Points(2.4)
+			}
+			o := &outline{segs: segs, ls: draw.LineStyle{Color: okabeIto[(k+1)%len(okabeIto)], Width: width, Dashes: dashes[(k+k/len(okabeIto))%len(dashes)]}}
 			if k%len(okabeIto) == len(okabeIto)-1 {
 				o.ls.Color = okabeIto[0]
 			}
@@ -771,11 +787,11 @@ func ringsFigure(r *Results) (figure, bool) {
 			pb.Add(zero)
 			var an, sn []string
 			for _, k := range ringKeys {
-				an = append(an, "ring to\n"+k.outer)
+				an = append(an, ringLabel(k.outer))
 			}
 			for _, k := range stepKeys {
 				if k.kind == "ring" {
-					sn = append(sn, "ring to\n"+k.outer)
+					sn = append(sn, ringLabel(k.outer))
 				} else {
 					sn = append(sn, "test points\nof "+k.outer)
 				}
