@@ -13,6 +13,8 @@ import (
 
 	"github.com/airbusgeo/godal"
 
+	"github.com/paulmach/orb"
+
 	"areasweep/extent/geodesy"
 )
 
@@ -232,23 +234,16 @@ func kmID(d float64) string {
 // belongs to a grown member when its centre is inside the base or within d
 // of the base boundary, and to a shrunk member when its centre is inside
 // and farther than |d| from the boundary; distances are geodesic on WGS84
-// to the boundary densified at a quarter of a cell.
+// to the boundary densified at a quarter of a cell (boundaryLonLat).
 func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error {
 	if len(ds) == 0 {
 		b.f.Chains[chainRegion] = []int{0}
 		return nil
 	}
 	ds = sortedUnique(ds)
-	var lats, lons []float64
-	step := b.g.CellSizeKm() * 1000 / 4
-	for _, p := range base.LonLat {
-		for _, r := range p {
-			for i := 1; i < len(r); i++ {
-				la, lo := geodesy.Densify(r[i-1][1], r[i-1][0], r[i][1], r[i][0], step)
-				lats = append(lats, la...)
-				lons = append(lons, lo...)
-			}
-		}
+	lats, lons := boundaryLonLat(b.g, base)
+	if len(lats) == 0 {
+		return fmt.Errorf("extent: the base region has no boundary off the antimeridian and poles; region buffers are not defined")
 	}
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {
@@ -300,6 +295,55 @@ func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error 
 		}
 	})
 	return nil
+}
+
+// boundaryLonLat returns points along the boundary of s every quarter
+// cell, as WGS84 latitude and longitude. Edges are densified as straight
+// lines in the grid's CRS, the same edges Fill uses to decide which cells
+// are inside, so distances are measured to the boundary that defines the
+// region on the grid. Seam edges (see seamEdge) are left out.
+func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
+	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5]) / 4
+	var xs, ys []float64
+	for _, p := range s.Grid {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				a, b := r[i-1], r[i]
+				if g.Geographic && seamEdge(a, b) {
+					continue
+				}
+				n := int(math.Ceil(math.Hypot(b[0]-a[0], b[1]-a[1]) / step))
+				n = max(n, 1)
+				for k := 0; k < n; k++ {
+					f := float64(k) / float64(n)
+					xs = append(xs, a[0]+f*(b[0]-a[0]))
+					ys = append(ys, a[1]+f*(b[1]-a[1]))
+				}
+				xs, ys = append(xs, b[0]), append(ys, b[1])
+			}
+		}
+	}
+	lons = make([]float64, len(xs))
+	lats = make([]float64, len(ys))
+	g.ToLonLat(xs, ys, lons, lats)
+	k := 0
+	for i := range lats {
+		if !math.IsNaN(lats[i]) {
+			lats[k], lons[k] = lats[i], lons[i]
+			k++
+		}
+	}
+	return lats[:k], lons[:k]
+}
+
+// seamEdge reports whether the edge a-b runs along the antimeridian or a
+// pole line. Such edges are where a region was cut to fit longitude and
+// latitude ranges, not its boundary on the Earth, so buffer distances are
+// not measured to them: a region split in two at 180 degrees is buffered as
+// the one region it is.
+func seamEdge(a, b orb.Point) bool {
+	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
+	return anti(a[0]) && anti(b[0]) || math.Abs(a[1]) == 90 && a[1] == b[1]
 }
 
 func memberIndex(bit uint64) int { return bits.TrailingZeros64(bit) }

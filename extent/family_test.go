@@ -56,12 +56,18 @@ func memberIdx(t *testing.T, f *Family, id string) int {
 	return -1
 }
 
-// densifyRing returns points along a ring's geodesic edges every step
-// metres.
+// densifyRing returns points along a ring's edges, taken as straight lines
+// in longitude/latitude (how a GIS draws and fills an EPSG:4326 polygon),
+// at most about step metres apart.
 func densifyRing(ring [][2]float64, step float64) (lats, lons []float64) {
 	for i := 1; i < len(ring); i++ {
-		la, lo := geodesy.Densify(ring[i-1][1], ring[i-1][0], ring[i][1], ring[i][0], step)
-		lats, lons = append(lats, la...), append(lons, lo...)
+		a, b := ring[i-1], ring[i]
+		n := int(math.Ceil(geodesy.Distance(a[1], a[0], b[1], b[0]) / step))
+		for k := 0; k <= n; k++ {
+			f := float64(k) / float64(n)
+			lons = append(lons, a[0]+f*(b[0]-a[0]))
+			lats = append(lats, a[1]+f*(b[1]-a[1]))
+		}
 	}
 	return lats, lons
 }
@@ -416,5 +422,89 @@ func TestBadGeometry(t *testing.T) {
 	am := writeGeoJSON(t, dir, "am.geojson", []string{"a"}, [][][2]float64{{{179, 1}, {-179, 1}, {-179, 3}, {179, 3}, {179, 1}}})
 	if _, _, err := ReadShape(am, g); err == nil || !strings.Contains(err.Error(), "antimeridian") {
 		t.Errorf("antimeridian ring: %v", err)
+	}
+}
+
+// TestRegionSplitAtAntimeridian: a region given as two polygons cut at 180
+// degrees (the usual way to store it in -180..180) is buffered as the one
+// rectangle 175 E - 175 W it is: the cut is not a boundary, so shrinking
+// keeps the cells along 180 and the whole family agrees with brute-force
+// distance to the true outline.
+func TestRegionSplitAtAntimeridian(t *testing.T) {
+	dir := t.TempDir()
+	east := [][2]float64{{175, -50}, {180, -50}, {180, -40}, {175, -40}, {175, -50}}
+	west := [][2]float64{{-180, -50}, {-175, -50}, {-175, -40}, {-180, -40}, {-180, -50}}
+	region := writeGeoJSON(t, dir, "split.geojson", []string{"e", "w"}, [][][2]float64{east, west})
+	g, v := geoGrid(t, 170, -35, 0.25, 80, 80)
+	f, err := Build(g, v, Spec{Region: region, RegionBuffersKm: []float64{-100, 100}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	outline := [][2]float64{{175, -50}, {185, -50}, {185, -40}, {175, -40}, {175, -50}}
+	blats, blons := densifyRing(outline, 4000)
+	base := memberIdx(t, f, "base")
+	if n := f.Members[base].Cells; n != 40*40 {
+		t.Fatalf("base has %d cells, want 1600 (10 x 10 degrees of 0.25-degree cells)", n)
+	}
+	halfDiag := 0.5 * math.Hypot(0.25*111.3, 0.25*111.3)
+	for _, c := range []struct {
+		id string
+		d  float64
+	}{{"region_minus100km", -100}, {"region_100km", 100}} {
+		k := memberIdx(t, f, c.id)
+		for row := 0; row < g.Height; row += 3 {
+			for col := row % 3; col < g.Width; col += 3 {
+				i := row*g.Width + col
+				lon, lat := g.Centre(col, row)
+				inside := f.Mask[i]>>uint(base)&1 == 1
+				dist := bruteBoundaryKm(lon, lat, blats, blons)
+				if math.Abs(dist-math.Abs(c.d)) <= halfDiag {
+					continue
+				}
+				want := inside && dist > -c.d
+				if c.d > 0 {
+					want = inside || dist <= c.d
+				}
+				if got := f.Mask[i]>>uint(k)&1 == 1; got != want {
+					t.Fatalf("%s: cell lon %.3f lat %.3f (%.1f km from the outline, inside %v): member %v, want %v", c.id, lon, lat, dist, inside, got, want)
+				}
+			}
+		}
+	}
+}
+
+// TestPolarCap: a cap north of 80 N, stored as two half-caps that run along
+// the antimeridian, the prime meridian and the pole line, touches the pole.
+// Only the parallel at 80 N is its boundary, so a cell is in the 200 km
+// growth exactly when its centre is within 200 km of that parallel: the
+// meridian arc from the centre's latitude to 80 N (geodesic distance along
+// a meridian, PROJ), and likewise for shrinking by 100 km.
+func TestPolarCap(t *testing.T) {
+	dir := t.TempDir()
+	half1 := [][2]float64{{-180, 80}, {0, 80}, {0, 90}, {-180, 90}, {-180, 80}}
+	half2 := [][2]float64{{0, 80}, {180, 80}, {180, 90}, {0, 90}, {0, 80}}
+	region := writeGeoJSON(t, dir, "cap.geojson", []string{"a", "b"}, [][][2]float64{half1, half2})
+	g, v := geoGrid(t, -180, 90, 1, 360, 30)
+	f, err := Build(g, v, Spec{Region: region, RegionBuffersKm: []float64{-100, 200}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	grow, shrink := memberIdx(t, f, "region_200km"), memberIdx(t, f, "region_minus100km")
+	for row := 0; row < g.Height; row++ {
+		lat := 90 - float64(row) - 0.5
+		d := geodesy.Distance(lat, 10, 80, 10) / 1000
+		for col := 0; col < g.Width; col += 7 {
+			m := f.Mask[row*g.Width+col]
+			if math.Abs(d-200) > 60 {
+				if got, want := m>>uint(grow)&1 == 1, lat > 80 || d <= 200; got != want {
+					t.Fatalf("region_200km at lat %.1f lon col %d (%.0f km from 80 N): %v, want %v", lat, col, d, got, want)
+				}
+			}
+			if math.Abs(d-100) > 60 {
+				if got, want := m>>uint(shrink)&1 == 1, lat > 80 && d > 100; got != want {
+					t.Fatalf("region_minus100km at lat %.1f col %d (%.0f km from 80 N): %v, want %v", lat, col, d, got, want)
+				}
+			}
+		}
 	}
 }

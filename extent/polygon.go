@@ -225,6 +225,25 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 	default:
 		return Shape{}, fmt.Errorf("geometry is a %s, not a polygon", og.GeoJSONType())
 	}
+	if g.Geographic {
+		// Put each ring in the grid's longitude range by whole turns, so a
+		// region given in -180..180 lands on a grid running 170..190.
+		west := g.GeoTransform[0]
+		for _, p := range mp {
+			for _, r := range p {
+				lo := math.Inf(1)
+				for _, pt := range r {
+					lo = math.Min(lo, pt[0])
+				}
+				shift := wrapInto(lo, west) - lo
+				if shift != 0 {
+					for k := range r {
+						r[k][0] += shift
+					}
+				}
+			}
+		}
+	}
 	ll := make(orb.MultiPolygon, len(mp))
 	for i, p := range mp {
 		ll[i] = make(orb.Polygon, len(p))
