@@ -556,6 +556,9 @@ func TestDemo(t *testing.T) {
 		t.Fatalf("no score %s/%s", model, ext)
 		return report.Score{}
 	}
+	if res.PointCounts.Thinned == 0 {
+		t.Error("demo: the scenario's duplicate records were not thinned")
+	}
 	b, w := get("good", "base"), get("good", "region_500km")
 	if !(w.AUC > b.AUC+0.03) {
 		t.Errorf("demo: AUC base %.4f, region_500km %.4f: the extent effect is not shown", b.AUC, w.AUC)
@@ -659,5 +662,67 @@ func TestExtentsCommand(t *testing.T) {
 		if !strings.Contains(string(csvb), fmt.Sprintf("%s,%s,", e.ID, e.Kind)) || !strings.Contains(string(csvb), fmt.Sprintf(",%d,", e.Cells)) {
 			t.Errorf("extents.csv lacks %s with %d cells", e.ID, e.Cells)
 		}
+	}
+}
+
+// TestOccurrencesCRS: the same points given in Web Mercator with
+// --occurrences-crs EPSG:3857 give the same scores as in longitude and
+// latitude (coordinates converted in the test with the spherical Mercator
+// formulas that define EPSG:3857: x = a lon, y = a ln tan(pi/4 + lat/2)).
+func TestOccurrencesCRS(t *testing.T) {
+	s := newSmallStudy(t)
+	body, err := os.ReadFile(s.occ)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const a = 6378137.0
+	// The small study's test points sit exactly on cell edges, where a
+	// round trip through another CRS may pick the neighbouring cell; move
+	// every point off the edges first (by construction).
+	var sl, sb strings.Builder
+	sl.WriteString("lon,lat,role\n")
+	sb.WriteString("x,y,role\n")
+	for _, line := range strings.Split(strings.TrimSpace(string(body)), "\n")[1:] {
+		var lon, lat float64
+		var role string
+		f := strings.Split(line, ",")
+		fmt.Sscan(f[0], &lon)
+		fmt.Sscan(f[1], &lat)
+		role = f[2]
+		lon, lat = lon+0.0123, lat+0.0071
+		sl.WriteString(fmt.Sprintf("%.6f,%.6f,%s\n", lon, lat, role))
+		x := a * lon * math.Pi / 180
+		y := a * math.Log(math.Tan(math.Pi/4+lat*math.Pi/360))
+		sb.WriteString(fmt.Sprintf("%.4f,%.4f,%s\n", x, y, role))
+	}
+	moved := filepath.Join(s.dir, "occ4326.csv")
+	os.WriteFile(moved, []byte(sl.String()), 0o644)
+	merc := filepath.Join(s.dir, "occ3857.csv")
+	os.WriteFile(merc, []byte(sb.String()), 0o644)
+	run := func(occ string, extra ...string) *report.Results {
+		out := filepath.Join(s.dir, "out-"+filepath.Base(occ))
+		args := append([]string{"run", "--model", "m=" + s.model, "--occurrences", occ, "--region", s.region, "--iterations", "20", "--quiet", "--out", out}, extra...)
+		if _, se, code := runBin(t, args...); code != 0 {
+			t.Fatalf("exit %d: %s", code, se)
+		}
+		return loadResults(t, out)
+	}
+	ll, mc := run(moved), run(merc, "--occurrences-crs", "EPSG:3857")
+	for i := range ll.Points {
+		p, q := ll.Points[i], mc.Points[i]
+		if math.Abs(p.Lon-q.Lon) > 1e-6 || math.Abs(p.Lat-q.Lat) > 1e-6 || p.Status != q.Status || p.Row != q.Row || p.Col != q.Col {
+			t.Errorf("point line %d: (%v, %v, %s) vs (%v, %v, %s) via EPSG:3857", p.ID, p.Lon, p.Lat, p.Status, q.Lon, q.Lat, q.Status)
+		}
+	}
+	if len(ll.Scores) != len(mc.Scores) {
+		t.Fatalf("%d scores vs %d", len(ll.Scores), len(mc.Scores))
+	}
+	for i := range ll.Scores {
+		if ll.Scores[i].AUC != mc.Scores[i].AUC || ll.Scores[i].TestPoints != mc.Scores[i].TestPoints {
+			t.Errorf("%s: AUC %v (lon/lat) vs %v (EPSG:3857); test points %d vs %d, cells %d vs %d", ll.Scores[i].Extent, ll.Scores[i].AUC, mc.Scores[i].AUC, ll.Scores[i].TestPoints, mc.Scores[i].TestPoints, ll.Scores[i].Cells, mc.Scores[i].Cells)
+		}
+	}
+	if mc.Settings.OccurrencesCRS != "EPSG:3857" {
+		t.Errorf("settings.occurrences_crs = %q", mc.Settings.OccurrencesCRS)
 	}
 }
