@@ -10,6 +10,7 @@ import (
 	"sort"
 	"strconv"
 	"sync"
+	"sync/atomic"
 
 	"github.com/airbusgeo/godal"
 
@@ -116,8 +117,12 @@ func NewValid(n int) Valid { return make(Valid, (n+63)/64) }
 // Set marks cell i valid.
 func (v Valid) Set(i int) { v[i>>6] |= 1 << (uint(i) & 63) }
 
-// Has reports whether cell i is valid.
-func (v Valid) Has(i int) bool { return v[i>>6]>>(uint(i)&63)&1 == 1 }
+// Has reports whether cell i is valid. A nil Valid holds every cell.
+func (v Valid) Has(i int) bool { return v == nil || v[i>>6]>>(uint(i)&63)&1 == 1 }
+
+// SetAtomic marks cell i valid; safe when goroutines mark cells that share
+// a word.
+func (v Valid) SetAtomic(i int) { atomic.OrUint64(&v[i>>6], 1<<(uint(i)&63)) }
 
 // builder accumulates members while the family is built.
 type builder struct {
@@ -135,8 +140,10 @@ func (b *builder) add(m Member) (bit uint64, err error) {
 	return 1 << uint(len(b.f.Members)-1), nil
 }
 
-// Build makes the family on grid g, clipped to the valid cells. trainCells
-// and testCells are the grid cell index of each point (or -1 outside).
+// Build makes the family on grid g, clipped to the valid cells (nil: every
+// cell). trainCells and testCells are the grid cell index of each point (or
+// -1 outside). A run that learns the valid cells only in its first scoring
+// pass builds with nil and calls Clip afterwards.
 func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
 	f := &Family{Grid: g, Mask: make([]uint64, g.Cells()), Chains: map[string][]int{}}
 	b := &builder{g: g, valid: valid, f: f}
@@ -641,8 +648,22 @@ func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error 
 	return nil
 }
 
+// Clip restricts the family to the valid cells and measures it again:
+// cells, areas, shares and points inside, members that became empty or
+// equal to another, and chain nesting. Members already empty or duplicate
+// stay so.
+func (f *Family) Clip(valid Valid, trainCells, testCells []int) {
+	for k := range f.Members {
+		m := &f.Members[k]
+		m.Cells, m.AreaKm2, m.Share, m.TrainPoints, m.TestPoints = 0, 0, 0, 0, 0
+	}
+	b := &builder{g: f.Grid, valid: valid, f: f}
+	b.finish(trainCells, testCells)
+}
+
 // finish clips every member to the valid cells, measures it, counts
 // points, marks empty and duplicate members, and checks chain nesting.
+// Members whose Status is not ok keep it and are not reported again.
 func (b *builder) finish(trainCells, testCells []int) {
 	f, g := b.f, b.g
 	n := len(f.Members)
@@ -686,6 +707,9 @@ func (b *builder) finish(trainCells, testCells []int) {
 	clear := uint64(0)
 	for k := range f.Members {
 		m := &f.Members[k]
+		if m.Status != StatusOK {
+			continue
+		}
 		if m.Cells == 0 {
 			m.Status = StatusEmpty
 			clear |= 1 << uint(k)

@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -506,5 +507,44 @@ func TestPolarCap(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestClipEqualsBuildOnValid: building on every cell and clipping to the
+// valid cells afterwards gives the family built on the valid cells at once.
+func TestClipEqualsBuildOnValid(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}})
+	same := writeGeoJSON(t, dir, "s.geojson", []string{"s"}, [][][2]float64{{{1, 1}, {3.6, 1}, {3.6, 3}, {1, 3}, {1, 1}}})
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	valid := NewValid(g.Cells())
+	for i := 0; i < g.Cells(); i++ {
+		if i%g.Width < 30 { // columns east of 3 E have no data
+			valid.Set(i)
+		}
+	}
+	train := []LonLat{{1.5, 1.5}, {2.5, 2.2}, {1.2, 2.8}}
+	trainCells := []int{25*40 + 15, 18*40 + 25, 12*40 + 12}
+	spec := Spec{Region: region, RegionBuffersKm: []float64{30}, Train: train, PointBuffersKm: []float64{40}, Extra: []Named{{"wide", same}}}
+	direct, err := Build(g, valid, spec, trainCells, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	later, err := Build(g, nil, spec, trainCells, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if later.Members[memberIdx(t, later, "user_wide")].Status != StatusOK {
+		t.Fatal("user_wide differs from base on all cells, so it is not a duplicate before clipping")
+	}
+	later.Clip(valid, trainCells, nil)
+	if !reflect.DeepEqual(direct.Members, later.Members) {
+		t.Errorf("members differ:\n%+v\n%+v", direct.Members, later.Members)
+	}
+	if !reflect.DeepEqual(direct.Mask, later.Mask) || !reflect.DeepEqual(direct.Chains, later.Chains) {
+		t.Error("masks or chains differ")
+	}
+	if m := later.Members[memberIdx(t, later, "user_wide")]; m.Status != StatusDuplicate || m.DuplicateOf != "base" {
+		t.Errorf("user_wide after clipping: %s of %q, want duplicate of base", m.Status, m.DuplicateOf)
 	}
 }

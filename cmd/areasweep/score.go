@@ -66,11 +66,22 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if i == 0 {
 		pv = pass.NewPreview(g, previewSide)
 	}
+	opt := pass.Options{Workers: s.o.Workers, Preview: pv}
+	if s.valid == nil {
+		// The first pass also finds the valid cells the family is clipped to.
+		opt.Valid = extent.NewValid(g.Cells())
+	}
 	bar := s.progress("scoring "+m.Name, r.Blocks())
-	accs, stats, err := r.Score(g, fam, layout, pass.Options{Workers: s.o.Workers, Progress: bar.update, Preview: pv})
+	opt.Progress = bar.update
+	accs, stats, err := r.Score(g, fam, layout, opt)
 	bar.finish()
 	if err != nil {
 		return badInput(err)
+	}
+	if opt.Valid != nil {
+		if err := s.clip(opt.Valid); err != nil {
+			return err
+		}
 	}
 	floor := 0.0
 	if stats.Area > 0 {

@@ -40,7 +40,8 @@ type session struct {
 	fam    *extent.Family
 	res    *report.Results
 	stage  string
-	valid  extent.Valid
+	valid  extent.Valid // nil until known: the family is then unclipped
+	nWarn  int          // family warnings already reported
 }
 
 // recordedPath is the path written into results.json for an input: as
@@ -95,15 +96,10 @@ func sweep(o *RunOptions) error {
 	if err := s.buildFamily(); err != nil {
 		return err
 	}
-	if err := s.fam.WriteGeoPackage(filepath.Join(stage, "extents.gpkg")); err != nil {
-		return err
-	}
-	if o.MembershipTIFF {
-		if err := s.fam.WriteMembershipTIFF(filepath.Join(stage, "extents.tif")); err != nil {
+	if o.ExtentsOnly {
+		if err := s.writeFamily(); err != nil {
 			return err
 		}
-	}
-	if o.ExtentsOnly {
 		if err := writeAtomic(filepath.Join(stage, "extents.csv"), extentsCSV(s.res.Extents)); err != nil {
 			return err
 		}
@@ -113,6 +109,9 @@ func sweep(o *RunOptions) error {
 			if err := s.scoreModel(i, m); err != nil {
 				return err
 			}
+		}
+		if err := s.writeFamily(); err != nil {
+			return err
 		}
 		if err := s.finishResults(); err != nil {
 			return err
@@ -150,6 +149,18 @@ func sweep(o *RunOptions) error {
 		fmt.Fprintf(o.IO.Out, "extents written to %s\n", filepath.Join(o.Out, "extents.gpkg"))
 	} else {
 		fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
+	}
+	return nil
+}
+
+// writeFamily exports the (clipped) family: extents.gpkg and, when asked,
+// extents.tif.
+func (s *session) writeFamily() error {
+	if err := s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg")); err != nil {
+		return err
+	}
+	if s.o.MembershipTIFF {
+		return s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif"))
 	}
 	return nil
 }
@@ -277,19 +288,26 @@ func (s *session) readPoints() error {
 		}
 		s.points[i] = p
 	}
-	// Valid cells of the reference (first) model: one read of it.
+	// Points on no-data of the reference (first) model, from point reads.
+	// A run learns the valid cells in its first scoring pass; 'extents',
+	// which scores nothing, reads them once here.
 	r, err := pass.Open(s.models[0].Path)
 	if err != nil {
 		return badInput(err)
 	}
 	defer r.Close()
-	bar := s.progress("reading "+s.models[0].Name+" (valid cells)", r.Blocks())
-	valid, err := r.ReadValid(g, bar.update)
-	bar.finish()
+	_, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
 		return badInput(err)
 	}
-	s.valid = valid
+	if o.ExtentsOnly {
+		bar := s.progress("reading "+s.models[0].Name+" (valid cells)", r.Blocks())
+		s.valid, err = r.ReadValid(g, bar.update)
+		bar.finish()
+		if err != nil {
+			return badInput(err)
+		}
+	}
 	var outside, nodata []string
 	for i := range s.points {
 		p := &s.points[i]
@@ -298,7 +316,7 @@ func (s *session) readPoints() error {
 			s.cell[i] = -1
 			continue
 		}
-		if !valid.Has(s.cell[i]) {
+		if !pointValid[i] {
 			p.Status = "nodata"
 			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
 			s.cell[i] = -1
@@ -477,16 +495,14 @@ func (s *session) buildFamily() error {
 	for _, w := range fam.Warnings {
 		s.warn(w)
 	}
+	s.nWarn = len(fam.Warnings)
 	if fam.Members[0].Cells == 0 {
-		return badInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, o.Region, s.models[0].Path))
+		return badInput(fmt.Errorf("%w: %s covers no cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, o.Region, s.models[0].Path))
 	}
-	for _, m := range fam.Members {
-		s.res.Extents = append(s.res.Extents, report.Extent{
-			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
-			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
-			Status: m.Status, DuplicateOf: m.DuplicateOf, Chain: m.Chain,
-		})
-		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
+	if s.valid != nil {
+		if err := s.recordExtents(); err != nil {
+			return err
+		}
 	}
 	s.res.Settings = report.Settings{
 		RegionBuffersKm: nonNil(o.RegionBuffers), PointBuffersKm: nonNil(spec.PointBuffersKm), PointBufferAll: o.PointBuffersAll,
@@ -498,6 +514,38 @@ func (s *session) buildFamily() error {
 	for _, m := range o.Extra {
 		name, path, _ := inputs.ParseNamedPath(m)
 		s.res.Settings.Extra = append(s.res.Settings.Extra, name+"="+s.recordedPath(path))
+	}
+	return nil
+}
+
+// clip restricts the family to the valid cells found by the first model's
+// pass and records it.
+func (s *session) clip(valid extent.Valid) error {
+	_, trainCells, _ := s.scoredPoints("train")
+	_, testCells, _ := s.scoredPoints("test")
+	s.valid = valid
+	s.fam.Clip(valid, trainCells, testCells)
+	for _, w := range s.fam.Warnings[s.nWarn:] {
+		s.warn(w)
+	}
+	s.nWarn = len(s.fam.Warnings)
+	return s.recordExtents()
+}
+
+// recordExtents copies the (clipped) family into Results.Extents.
+func (s *session) recordExtents() error {
+	fam := s.fam
+	if fam.Members[0].Cells == 0 {
+		return badInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, s.models[0].Path))
+	}
+	s.res.Extents = s.res.Extents[:0]
+	for _, m := range fam.Members {
+		s.res.Extents = append(s.res.Extents, report.Extent{
+			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
+			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
+			Status: m.Status, DuplicateOf: m.DuplicateOf, Chain: m.Chain,
+		})
+		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
 	}
 	return nil
 }

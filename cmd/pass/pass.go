@@ -229,6 +229,10 @@ type Options struct {
 	Progress func(done, total int)
 	// Preview, when set, receives the coarse copy of this raster.
 	Preview *Preview
+	// Valid, when set, receives a bit for every valid cell that belongs to
+	// some extent, so that the first model's pass also yields the cells the
+	// family is clipped to (no separate read).
+	Valid extent.Valid
 }
 
 // Score streams the raster once and returns one accumulator per family
@@ -267,7 +271,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 			// side by side in memory and per-cell writes would share cache lines.
 			var st Stats
 			for b := range blocks {
-				r.scoreBlock(g, fam, layout, b, p.accs, &st, areas, weights, opt.Preview)
+				r.scoreBlock(g, fam, layout, b, p.accs, &st, areas, weights, opt.Preview, opt.Valid)
 				free <- b.buf
 				doneBlocks <- struct{}{}
 			}
@@ -301,7 +305,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 }
 
 // scoreBlock adds every valid cell of b to the accumulators of its extents.
-func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview) {
+func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview, valid extent.Valid) {
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
 		areas = g.RowAreas(row, areas)
@@ -324,6 +328,9 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.
 			m := mask[x]
 			if m == 0 || !r.valid(v) {
 				continue
+			}
+			if valid != nil {
+				valid.SetAtomic(base + x)
 			}
 			w := weights[x]
 			switch {
