@@ -726,3 +726,110 @@ func TestOccurrencesCRS(t *testing.T) {
 		t.Errorf("settings.occurrences_crs = %q", mc.Settings.OccurrencesCRS)
 	}
 }
+
+// TestProjectedEqualAreaGrid runs on an EPSG:3035 (Lambert azimuthal
+// equal-area) grid with a region and points given in longitude/latitude:
+// cell areas must be the planar 10 km x 10 km = 100 km2 (equal-area
+// projection), and every extent's AUC must match brute force over its
+// cells from extents.tif.
+func TestProjectedEqualAreaGrid(t *testing.T) {
+	dir := t.TempDir()
+	w, h := 60, 50
+	gt := [6]float64{4000000, 10000, 0, 3000000, 0, -10000}
+	vals := make([]float64, w*h)
+	for r := 0; r < h; r++ {
+		for c := 0; c < w; c++ {
+			x, y := float64(c)-30, float64(r)-25
+			vals[r*w+c] = float64(float32(math.Round(100*math.Exp(-(x*x+y*y)/300)) / 100))
+		}
+	}
+	model := filepath.Join(dir, "laea.tif")
+	ds, err := godal.Create(godal.GTiff, model, 1, godal.Float32, w, h)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(gt)
+	sr, _ := godal.NewSpatialRefFromEPSG(3035)
+	ds.SetSpatialRef(sr)
+	buf := make([]float32, len(vals))
+	for i, v := range vals {
+		buf[i] = float32(v)
+	}
+	ds.Bands()[0].Write(0, 0, buf, w, h)
+	ds.Close()
+	// Centre of the grid in lon/lat, via PROJ in the test.
+	wgs, _ := godal.NewSpatialRefFromEPSG(4326)
+	tr, err := godal.NewTransform(sr, wgs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tr.Close()
+	xs := []float64{4300000, 4150000, 4450000}
+	ys := []float64{2750000, 2600000, 2900000}
+	tr.TransformEx(xs, ys, nil, nil)
+	clon, clat := xs[0], ys[0]
+	region := filepath.Join(dir, "r.geojson")
+	os.WriteFile(region, []byte(fmt.Sprintf(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[%f,%f],[%f,%f],[%f,%f],[%f,%f],[%f,%f]]]}}]}`,
+		xs[1], ys[1], xs[2], ys[1], xs[2], ys[2], xs[1], ys[2], xs[1], ys[1])), 0o644)
+	var sb strings.Builder
+	sb.WriteString("longitude,latitude,role\n")
+	for i := 0; i < 30; i++ {
+		ang := float64(i) * 0.7
+		rad := 0.3 + 0.04*float64(i%9)
+		role := "train"
+		if i%3 == 0 {
+			role = "test"
+		}
+		sb.WriteString(fmt.Sprintf("%.5f,%.5f,%s\n", clon+rad*math.Cos(ang)+0.0123, clat+0.7*rad*math.Sin(ang)+0.0071, role))
+	}
+	occ := filepath.Join(dir, "occ.csv")
+	os.WriteFile(occ, []byte(sb.String()), 0o644)
+	out := filepath.Join(dir, "out")
+	if _, se, code := runBin(t, "run", "--model", "m="+model, "--occurrences", occ, "--region", region, "--region-buffers=-30,50",
+		"--point-buffers", "40", "--hull-buffers", "0", "--iterations", "20", "--membership-tif", "--quiet", "--out", out); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	res := loadResults(t, out)
+	if res.Grid.Geographic || res.Grid.CRS != "EPSG:3035" {
+		t.Errorf("grid %+v", res.Grid)
+	}
+	names, bands := readBands(t, filepath.Join(out, "extents.tif"))
+	scores := map[string]report.Score{}
+	for _, sc := range res.Scores {
+		scores[sc.Extent] = sc
+	}
+	compared := 0
+	for k, e := range res.Extents {
+		if names[k] != e.ID || e.Status != "ok" {
+			continue
+		}
+		if math.Abs(e.AreaKm2-100*float64(e.Cells)) > 1e-6 {
+			t.Errorf("%s: area %.3f km2 for %d cells of 100 km2", e.ID, e.AreaKm2, e.Cells)
+		}
+		var bg, wt, pres []float64
+		for i, b := range bands[k] {
+			if b == 1 {
+				bg = append(bg, vals[i])
+				wt = append(wt, 1)
+			}
+		}
+		for _, p := range res.Points {
+			if p.Role == "test" && p.Status == "scored" && bands[k][p.Row*w+p.Col] == 1 {
+				pres = append(pres, vals[p.Row*w+p.Col])
+			}
+		}
+		if len(pres) == 0 {
+			continue
+		}
+		compared++
+		if want := bruteAUC(pres, bg, wt); math.Abs(scores[e.ID].AUC-want) > 1e-9 {
+			t.Errorf("%s: auc %.12f, brute force %.12f", e.ID, scores[e.ID].AUC, want)
+		}
+	}
+	if compared < 5 {
+		t.Errorf("only %d extents with test points compared", compared)
+	}
+	if len(res.Rings) == 0 {
+		t.Error("no nested rings on the projected grid")
+	}
+}
