@@ -142,6 +142,10 @@ type Score struct {
 	AreaKm2     float64 `json:"area_km2"`
 	TestPoints  int     `json:"test_points"`
 	TrainPoints int     `json:"train_points"`
+	// TestOutside and TrainOutside count the model's scored points that lie
+	// outside this extent (reported, not scored on it).
+	TestOutside  int `json:"test_points_outside"`
+	TrainOutside int `json:"train_points_outside"`
 
 	AUC           float64 `json:"auc"`
 	AUCUnweighted float64 `json:"auc_unweighted"`

@@ -285,6 +285,9 @@ func TestRunAgainstBruteForce(t *testing.T) {
 			}
 		}
 		sc := scores["m/"+e.ID]
+		if sc.TestPoints+sc.TestOutside != len(test) {
+			t.Errorf("%s: %d test points inside + %d outside, want %d in all", e.ID, sc.TestPoints, sc.TestOutside, len(test))
+		}
 		if len(pres) == 0 {
 			if sc.Scored {
 				t.Errorf("%s: scored without test points", e.ID)

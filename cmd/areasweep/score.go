@@ -112,6 +112,12 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		}
 		return out
 	}
+	nTest := 0
+	for j, p := range s.points {
+		if p.Status == "scored" && p.Role == "test" && valid[j] {
+			nTest++
+		}
+	}
 	for k, mem := range fam.Members {
 		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 		switch mem.Status {
@@ -125,6 +131,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 			continue
 		}
 		train, test := presence(k, "train"), presence(k, "test")
+		sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
 		set.Seed = deriveSeed(s.o.Seed, m.Name, mem.ID)
 		out, err := metrics.Score(accs[k], train, test, set)
 		if err != nil {
