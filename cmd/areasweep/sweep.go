@@ -246,8 +246,10 @@ func (s *session) readPoints() error {
 			return badInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %v", o.OccurrencesCRS, err))
 		}
 		geographic = sr.Geographic()
-		if !geographic {
-			wgs, _ := godal.NewSpatialRefFromEPSG(4326)
+		// Any CRS other than WGS84 itself is transformed, a geographic one
+		// on another datum (e.g. EPSG:4258) included.
+		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
+		if !sr.IsSame(wgs) {
 			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
 				return badInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %v", o.OccurrencesCRS, err))
 			}
