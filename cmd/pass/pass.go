@@ -32,6 +32,9 @@ type Raster struct {
 	band      godal.Band
 	nodata    float64
 	hasNodata bool
+	// scale and offset turn stored values into model values
+	// (value = stored*scale + offset), as the band declares.
+	scale, offset float64
 }
 
 // Open opens the first band of the raster at path.
@@ -48,19 +51,34 @@ func Open(path string) (*Raster, error) {
 	}
 	r := &Raster{Path: path, ds: ds, band: bands[0]}
 	r.nodata, r.hasNodata = r.band.NoData()
+	st := r.band.Structure()
+	r.scale, r.offset = st.Scale, st.Offset
+	if r.scale == 0 {
+		r.scale = 1
+	}
 	return r, nil
+}
+
+// decode turns stored values into model values in place: no-data, NaN and
+// infinite values become NaN, the others are scaled and offset when the
+// band declares a scale or offset.
+func (r *Raster) decode(buf []float64) {
+	plain := r.scale == 1 && r.offset == 0
+	for i, v := range buf {
+		switch {
+		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && v == r.nodata:
+			buf[i] = math.NaN()
+		case !plain:
+			buf[i] = v*r.scale + r.offset
+		}
+	}
 }
 
 // Close closes the raster.
 func (r *Raster) Close() error { return r.ds.Close() }
 
-// valid reports whether v is a value to score.
-func (r *Raster) valid(v float64) bool {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return false
-	}
-	return !r.hasNodata || v != r.nodata
-}
+// valid reports whether a decoded value is one to score.
+func (r *Raster) valid(v float64) bool { return !math.IsNaN(v) }
 
 // Sample returns the raster's value at each cell index (row*width+col) and
 // whether it is valid. Cells < 0 are reported invalid.
@@ -75,20 +93,26 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 		if err := r.band.Read(c%g.Width, c/g.Width, buf, 1, 1); err != nil {
 			return nil, nil, fmt.Errorf("pass: read %s at column %d row %d: %w", r.Path, c%g.Width, c/g.Width, err)
 		}
+		r.decode(buf)
 		vals[i], ok[i] = buf[0], r.valid(buf[0])
 	}
 	return vals, ok, nil
 }
 
 // ApproxRange returns GDAL's approximate minimum and maximum of the band
-// (from overviews or a sample of blocks): the range of the fine histogram.
+// (from overviews or a sample of blocks), in model values: the range of the
+// fine histogram.
 // It does not need a full read.
 func (r *Raster) ApproxRange() (lo, hi float64, err error) {
 	st, err := r.band.ComputeStatistics(godal.Approximate())
 	if err != nil {
 		return 0, 0, fmt.Errorf("pass: statistics of %s: %w", r.Path, err)
 	}
-	return st.Min, st.Max, nil
+	lo, hi = st.Min*r.scale+r.offset, st.Max*r.scale+r.offset
+	if lo > hi {
+		lo, hi = hi, lo
+	}
+	return lo, hi, nil
 }
 
 // block is one block of cells read from the raster.
@@ -108,6 +132,7 @@ func (r *Raster) each(out chan<- block, free chan []float64, size int) error {
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
 			return fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
 		}
+		r.decode(buf)
 		out <- block{b.X0, b.Y0, b.W, b.H, buf}
 	}
 	return nil

@@ -144,3 +144,44 @@ func BenchmarkScorePass(b *testing.B) {
 		}
 	}
 }
+
+// TestScaleOffset: a band stored as integers with a declared scale and
+// offset is scored on its model values (value = stored*scale + offset), and
+// its no-data value is honoured before scaling (by construction).
+func TestScaleOffset(t *testing.T) {
+	extent.Register()
+	path := filepath.Join(t.TempDir(), "scaled.tif")
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Int16, 4, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform([6]float64{0, 1, 0, 1, 0, -1})
+	sr, _ := godal.NewSpatialRefFromEPSG(4326)
+	ds.SetSpatialRef(sr)
+	b := ds.Bands()[0]
+	b.SetNoData(-1)
+	if err := b.SetScaleOffset(0.001, 0.5); err != nil {
+		t.Fatal(err)
+	}
+	b.Write(0, 0, []int16{0, 250, -1, 500}, 4, 1)
+	ds.Close()
+	r, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	g, err := extent.OpenGrid(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vals, ok, err := r.Sample(g, []int{0, 1, 2, 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []float64{0.5, 0.75, 0, 1.0}
+	for i := range want {
+		if ok[i] != (i != 2) || ok[i] && math.Abs(vals[i]-want[i]) > 1e-12 {
+			t.Errorf("cell %d: value %v valid %v, want %v valid %v", i, vals[i], ok[i], want[i], i != 2)
+		}
+	}
+}
