@@ -1,10 +1,3 @@
-// Package pass reads model rasters block by block and feeds every valid
-// cell to the accumulators of every extent holding it: the one streaming
-// scoring pass of a run. Blocks are read in the raster's natural block size
-// by one reader and scored by parallel workers, each with its own
-// accumulators, merged at the end. Accumulators hold integer sums, so the
-// merged result does not depend on the number of workers or the order in
-// which blocks finish.
 package pass
 
 import (
