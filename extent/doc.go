@@ -14,9 +14,10 @@
 // all rings; a centre exactly on an edge follows the half-open rule of Fill,
 // so two polygons sharing an edge never share a cell). Buffer distances are
 // geodesic on the WGS84 ellipsoid (PROJ's implementation of Karney 2013),
-// measured from the cell centre to the boundary densified at a quarter of a
-// cell, so a cell whose centre lies farther than half a cell diagonal from a
-// buffer's edge is always classified correctly.
+// measured from the cell centre to the boundary densified every cell side
+// (a distance is then overestimated by less than half a side), so a cell
+// whose centre lies farther than half a cell diagonal from a buffer's edge
+// is always classified correctly.
 //
 // Every member is clipped to the valid cells of the reference model; a
 // member with no cell is reported "empty" and one with exactly the cells of

@@ -241,7 +241,7 @@ func kmID(d float64) string {
 // belongs to a grown member when its centre is inside the base or within d
 // of the base boundary, and to a shrunk member when its centre is inside
 // and farther than |d| from the boundary; distances are geodesic on WGS84
-// to the boundary densified at a quarter of a cell (boundaryLonLat).
+// to the boundary densified every cell side (boundaryLonLat).
 func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error {
 	if len(ds) == 0 {
 		b.f.Chains[chainRegion] = []int{0}
@@ -304,13 +304,17 @@ func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error 
 	return nil
 }
 
-// boundaryLonLat returns points along the boundary of s every quarter
-// cell, as WGS84 latitude and longitude. Edges are densified as straight
+// boundaryLonLat returns points along the boundary of s every cell side,
+// as WGS84 latitude and longitude. Edges are densified as straight
 // lines in the grid's CRS, the same edges Fill uses to decide which cells
 // are inside, so distances are measured to the boundary that defines the
 // region on the grid. Seam edges (see seamEdge) are left out.
 func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
-	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5]) / 4
+	// One cell side: the nearest sample is then within half a side of the
+	// nearest boundary point, so a distance is overestimated by less than
+	// half a cell diagonal, the margin within which a cell may fall either
+	// side of a buffer edge.
+	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
 	var xs, ys []float64
 	for _, p := range s.Grid {
 		for _, r := range p {
@@ -390,21 +394,33 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 	return nil
 }
 
-// distanceField calls set(i, dist) for every cell i of the grid, rows in
-// parallel; each call writes only its own cell. dist is the geodesic
-// distance from the cell centre to the nearest site of ix when that is
-// within maxD metres (by the reach box), +Inf otherwise.
+// tileSide is the side, in cells, of the tiles distanceField classifies
+// with one query when no cut passes through them.
+const tileSide = 16
+
+// distanceField calls set(i, dist) for every cell i of the grid; each call
+// writes only its own cell, from several goroutines. dist is the geodesic
+// distance from the cell centre to the nearest site of ix, or any value
+// above maxD (+Inf among them) when that distance exceeds maxD.
 //
 // Only the class of each cell matters to the callers: which of the cut
-// distances (metres) the distance lies below. The distance is 1-Lipschitz
-// along a row, so after an exact query at distance D, the following cells
-// whose summed centre-to-centre steps stay below the gap between D and the
-// nearest cut are in the same class and receive D without a query. This
-// keeps the cost near the buffers' edges instead of over their whole area.
+// distances (metres, all <= maxD) the distance lies below. The distance
+// function is 1-Lipschitz, which saves most queries:
+//
+//   - a tile of tileSide x tileSide cells gets one query at its centre cell,
+//     D, and rho, the largest distance from that centre to a corner cell
+//     (times a small safety factor); when every cut is farther than rho
+//     from D, or D - rho > maxD, every cell of the tile is in D's class and
+//     receives D; otherwise the tile is split in four and each quarter tried
+//     the same way;
+//   - tiles of two cells or fewer a side have their rows walked: after an
+//     exact query at distance D, the following cells whose summed
+//     centre-to-centre steps stay below the gap between D and the nearest
+//     cut receive D.
+//
+// The cost so stays near the buffers' edges instead of over their area.
 func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, set func(i int, dist float64)) {
 	g := b.g
-	rows := make(chan int)
-	var wg sync.WaitGroup
 	gap := func(d float64) float64 {
 		m := math.Inf(1)
 		for _, c := range cuts {
@@ -412,54 +428,126 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 		}
 		return m
 	}
+	bands := make(chan int)
+	var wg sync.WaitGroup
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			lons := make([]float64, g.Width)
-			lats := make([]float64, g.Width)
-			for row := range rows {
-				g.RowLonLat(row, lons, lats)
-				base := row * g.Width
-				// On latitude-longitude grids the step between neighbouring
-				// centres is the same along the row.
-				rowStep := -1.0
-				if g.Geographic && g.Width > 1 {
-					rowStep = geodesy.Distance(lats[0], lons[0], lats[1], lons[1])
+			lons := make([][]float64, tileSide)
+			lats := make([][]float64, tileSide)
+			steps := make([]float64, tileSide)
+			for k := range lons {
+				lons[k] = make([]float64, g.Width)
+				lats[k] = make([]float64, g.Width)
+			}
+			for r0 := range bands {
+				r1 := min(r0+tileSide, g.Height)
+				for r := r0; r < r1; r++ {
+					k := r - r0
+					g.RowLonLat(r, lons[k], lats[k])
+					// On latitude-longitude grids the step between
+					// neighbouring centres is the same along the row.
+					steps[k] = -1
+					if g.Geographic && g.Width > 1 {
+						steps[k] = geodesy.Distance(lats[k][0], lons[k][0], lats[k][1], lons[k][1])
+					}
 				}
-				for c := 0; c < g.Width; c++ {
-					if math.IsNaN(lats[c]) || !reach.has(lons[c], lats[c]) {
-						set(base+c, math.Inf(1))
-						continue
-					}
-					_, d := ix.Nearest(lats[c], lons[c], maxD)
-					set(base+c, d)
-					if math.IsInf(d, 1) {
-						continue
-					}
-					// Skip ahead while the class cannot change.
-					room := gap(d)
-					for c+1 < g.Width && !math.IsNaN(lats[c+1]) {
-						if rowStep >= 0 {
-							room -= rowStep
-						} else {
-							room -= geodesy.Distance(lats[c], lons[c], lats[c+1], lons[c+1])
+				var classify func(t0, t1, c0, c1 int)
+				classify = func(t0, t1, c0, c1 int) {
+					if t1-t0 > 2 && c1-c0 > 2 {
+						if b.wholeTile(ix, maxD, gap, set, lons, lats, r0, t0, t1, c0, c1) {
+							return
 						}
-						if room <= 0 || !reach.has(lons[c+1], lats[c+1]) {
-							break
-						}
-						c++
-						set(base+c, d)
+						tm, cm := (t0+t1)/2, (c0+c1)/2
+						classify(t0, tm, c0, cm)
+						classify(t0, tm, cm, c1)
+						classify(tm, t1, c0, cm)
+						classify(tm, t1, cm, c1)
+						return
 					}
+					for r := t0; r < t1; r++ {
+						k := r - r0
+						walkRow(ix, reach, maxD, gap, set, lons[k], lats[k], steps[k], r*g.Width, c0, c1)
+					}
+				}
+				for c0 := 0; c0 < g.Width; c0 += tileSide {
+					classify(r0, r1, c0, min(c0+tileSide, g.Width))
 				}
 			}
 		}()
 	}
-	for row := 0; row < g.Height; row++ {
-		rows <- row
+	for r0 := 0; r0 < g.Height; r0 += tileSide {
+		bands <- r0
 	}
-	close(rows)
+	close(bands)
 	wg.Wait()
+}
+
+// wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
+// one query when it can, and reports whether it did. lons and lats hold
+// the rows of the band starting at row band.
+func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(float64) float64, set func(int, float64),
+	lons, lats [][]float64, band, r0, r1, c0, c1 int) bool {
+	g := b.g
+	kc, cc := (r0+r1)/2-band, (c0+c1)/2
+	clat, clon := lats[kc][cc], lons[kc][cc]
+	if math.IsNaN(clat) {
+		return false
+	}
+	rho := 0.0
+	for _, k := range []int{r0 - band, r1 - 1 - band} {
+		for _, c := range []int{c0, c1 - 1} {
+			if math.IsNaN(lats[k][c]) {
+				return false
+			}
+			rho = math.Max(rho, geodesy.Distance(clat, clon, lats[k][c], lons[k][c]))
+		}
+	}
+	// Corner cells are the farthest from the centre cell on these small,
+	// convex tiles; the factor covers the curvature of the tile's edges.
+	rho = rho*1.01 + 1
+	_, d := ix.Nearest(clat, clon, maxD+rho)
+	if !(d-rho > maxD) && !(gap(d) > rho) {
+		return false
+	}
+	for r := r0; r < r1; r++ {
+		base := r * g.Width
+		for c := c0; c < c1; c++ {
+			set(base+c, d)
+		}
+	}
+	return true
+}
+
+// walkRow classifies cells [c0,c1) of one row (cells base+c), querying
+// where needed and skipping ahead while the class cannot change.
+func walkRow(ix *geodesy.Index, reach reachBox, maxD float64, gap func(float64) float64, set func(int, float64),
+	lons, lats []float64, rowStep float64, base, c0, c1 int) {
+	for c := c0; c < c1; c++ {
+		if math.IsNaN(lats[c]) || !reach.has(lons[c], lats[c]) {
+			set(base+c, math.Inf(1))
+			continue
+		}
+		_, d := ix.Nearest(lats[c], lons[c], maxD)
+		set(base+c, d)
+		if math.IsInf(d, 1) {
+			continue
+		}
+		room := gap(d)
+		for c+1 < c1 && !math.IsNaN(lats[c+1]) {
+			if rowStep >= 0 {
+				room -= rowStep
+			} else {
+				room -= geodesy.Distance(lats[c], lons[c], lats[c+1], lons[c+1])
+			}
+			if room <= 0 || !reach.has(lons[c+1], lats[c+1]) {
+				break
+			}
+			c++
+			set(base+c, d)
+		}
+	}
 }
 
 // reachBox is a conservative longitude/latitude box around sites expanded

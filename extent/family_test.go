@@ -548,3 +548,37 @@ func TestClipEqualsBuildOnValid(t *testing.T) {
 		t.Errorf("user_wide after clipping: %s of %q, want duplicate of base", m.Status, m.DuplicateOf)
 	}
 }
+
+// TestHullAroundPole: training points ringing the north pole at 75 N give
+// a hull holding the pole; every cell north of 76 N is inside (the hull's
+// great-circle edges between points 30 degrees of longitude apart dip at
+// most ~0.9 degree below the points' latitude, so 76 N is clear of them;
+// by construction).
+func TestHullAroundPole(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{-10, 70}, {10, 70}, {10, 72}, {-10, 72}, {-10, 70}}})
+	g, v := geoGrid(t, -180, 90, 1, 360, 30)
+	var pts []LonLat
+	for lon := -180.0; lon < 180; lon += 30 {
+		pts = append(pts, LonLat{Lon: lon, Lat: 75})
+	}
+	f, err := Build(g, v, Spec{Region: region, Train: pts, HullBuffersKm: []float64{0}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := memberIdx(t, f, "hull")
+	for row := 0; row < 14; row++ { // centres 89.5 .. 76.5 N
+		for col := 0; col < g.Width; col++ {
+			if f.Mask[row*g.Width+col]>>uint(k)&1 != 1 {
+				t.Fatalf("cell at lat %.1f lon %d is outside the hull around the pole", 89.5-float64(row), col-180)
+			}
+		}
+	}
+	for row := 17; row < g.Height; row++ { // 72.5 N and south
+		for col := 0; col < g.Width; col++ {
+			if f.Mask[row*g.Width+col]>>uint(k)&1 == 1 {
+				t.Fatalf("cell at lat %.1f is inside the hull", 89.5-float64(row))
+			}
+		}
+	}
+}

@@ -223,6 +223,45 @@ func (g *Grid) CellSizeKm() float64 {
 	return geodesy.Distance(lats[0], lons[0], lats[1], lons[1]) / 1000
 }
 
+// MinCellSideM returns, in metres, the shortest cell side on the grid: for
+// latitude-longitude grids the east-west side of the row nearest a pole,
+// for projected grids the shorter side at the four corner cells and the
+// centre.
+func (g *Grid) MinCellSideM() float64 {
+	best := math.Inf(1)
+	for _, rc := range [][2]int{{0, 0}, {g.Width - 1, 0}, {0, g.Height - 1}, {g.Width - 1, g.Height - 1}, {g.Width / 2, g.Height / 2}} {
+		c, r := rc[0], rc[1]
+		gt := g.GeoTransform
+		x0, y0 := gt[0]+float64(c)*gt[1], gt[3]+float64(r)*gt[5]
+		xs := []float64{x0, x0 + gt[1], x0}
+		ys := []float64{y0 + gt[5]/2, y0 + gt[5]/2, y0 + gt[5]}
+		if g.Geographic {
+			// East-west along the cell's poleward edge, the shorter one.
+			ys[0], ys[1] = y0, y0
+			if math.Abs(y0+gt[5]) > math.Abs(y0) {
+				ys[0], ys[1] = y0+gt[5], y0+gt[5]
+			}
+			ys[0], ys[1] = math.Max(-90, math.Min(90, ys[0])), math.Max(-90, math.Min(90, ys[1]))
+		}
+		lons := make([]float64, 3)
+		lats := make([]float64, 3)
+		g.ToLonLat(xs, ys, lons, lats)
+		if math.IsNaN(lats[0]) || math.IsNaN(lats[1]) || math.IsNaN(lats[2]) {
+			continue
+		}
+		ew := geodesy.Distance(lats[0], lons[0], lats[1], lons[1])
+		ns := geodesy.Distance(lats[0], lons[0], lats[2], lons[2])
+		if ew > 0 {
+			best = math.Min(best, ew)
+		}
+		best = math.Min(best, ns)
+	}
+	if math.IsInf(best, 1) {
+		return g.CellSizeKm() * 1000
+	}
+	return best
+}
+
 // ToLonLat converts grid-CRS coordinates to WGS84 longitude and latitude.
 // Points that cannot be converted get NaN.
 func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {

@@ -176,8 +176,8 @@ func (s *sphericalHull) boundary() []LonLat {
 
 // hull adds the training points' convex hull and its geodesic buffers.
 // Hull edges are great-circle arcs; the buffer distance is measured on the
-// WGS84 ellipsoid to the edges densified as ellipsoidal geodesics at a
-// quarter cell (the two edge curves differ by far less than a cell at
+// WGS84 ellipsoid to the edges densified as ellipsoidal geodesics at the
+// smallest cell side (the two edge curves differ by far less than a cell at
 // continental scale).
 func (b *builder) hull(train []LonLat, ds []float64) error {
 	h, err := newSphericalHull(train)
@@ -207,7 +207,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		maxD = math.Max(maxD, d*1000)
 	}
 	ring := h.boundary()
-	step := b.g.CellSizeKm() * 1000 / 4
+	step := b.g.MinCellSideM()
 	var lats, lons []float64
 	for i := 1; i < len(ring); i++ {
 		la, lo := geodesy.Densify(ring[i-1].Lat, ring[i-1].Lon, ring[i].Lat, ring[i].Lon, step)
@@ -234,12 +234,22 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 	for _, bt := range bits {
 		all |= bt
 	}
+	// The box around the densified boundary holds the hull (its edges'
+	// poleward bulge included, being sampled; a pole inside the hull widens
+	// it to the pole), so only cells in it are tested.
+	box := newReach(lats, lons, 0)
+	if h.contains(0, 90) {
+		box.north, box.lonH = 90, 360
+	}
+	if h.contains(0, -90) {
+		box.south, box.lonH = -90, 360
+	}
 	lonsR := make([]float64, g.Width)
 	latsR := make([]float64, g.Width)
 	for row := 0; row < g.Height; row++ {
 		g.RowLonLat(row, lonsR, latsR)
 		for c := 0; c < g.Width; c++ {
-			if !math.IsNaN(latsR[c]) && h.contains(lonsR[c], latsR[c]) {
+			if !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c]) {
 				b.f.Mask[row*g.Width+c] |= all
 			}
 		}
