@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"time"
 
 	"areasweep/cmd/pass"
 	"areasweep/extent"
@@ -71,6 +72,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		// The first pass also finds the valid cells the family is clipped to.
 		opt.Valid = extent.NewValid(g.Cells())
 	}
+	t0 := time.Now()
 	bar := s.progress("scoring "+m.Name, r.Blocks())
 	opt.Progress = bar.update
 	accs, stats, err := r.Score(g, fam, layout, opt)
@@ -78,6 +80,8 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if err != nil {
 		return badInput(err)
 	}
+	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
+	t0 = time.Now()
 	if opt.Valid != nil {
 		if err := s.clip(opt.Valid); err != nil {
 			return err
@@ -169,6 +173,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		s.res.Scores = append(s.res.Scores, sc)
 		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
+	s.logf("%s: scores on %d extents (bootstrap included) in %.1f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, accs, presence); err != nil {
 		return err
 	}

@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
 	"github.com/airbusgeo/godal"
 
@@ -129,9 +130,11 @@ func sweep(o *RunOptions) error {
 		if err := writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res); err != nil {
 			return err
 		}
+		t0 := time.Now()
 		if err := report.Write(stage, s.res); err != nil {
 			return err
 		}
+		s.logf("report written in %.1f s", time.Since(t0).Seconds())
 	}
 	if err := writeAtomic(filepath.Join(stage, "run.log"), []byte(s.log.String())); err != nil {
 		return err
@@ -486,7 +489,9 @@ func (s *session) buildFamily() error {
 		spec.Extra = append(spec.Extra, extent.Named{Name: name, Path: path})
 	}
 	s.logf("building the extent family")
+	t0 := time.Now()
 	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
+	s.logf("extent family: %d members built in %.1f s", len(fam.Members), time.Since(t0).Seconds())
 	if err != nil {
 		if errors.Is(err, extent.ErrTooManyMembers) {
 			return badInput(err)
