@@ -28,7 +28,10 @@ func (f *Family) memberRaster(k int) (*godal.Dataset, error) {
 		ds.Close()
 		return nil, err
 	}
-	f.fillMemberBand(ds.Bands()[0], k)
+	if err := f.fillMemberBand(ds.Bands()[0], k); err != nil {
+		ds.Close()
+		return nil, err
+	}
 	return ds, nil
 }
 

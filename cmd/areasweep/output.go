@@ -216,14 +216,23 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 			return err
 		}
 		fl := ft.Fields()
-		ft.SetFieldValue(fl["line"], p.ID)
-		ft.SetFieldValue(fl["nearest_train_km"], p.NearestTrainKm)
+		if err := ft.SetFieldValue(fl["line"], p.ID); err != nil {
+			ds.Close()
+			return fmt.Errorf("write %s: %w", path, err)
+		}
+		if err := ft.SetFieldValue(fl["nearest_train_km"], p.NearestTrainKm); err != nil {
+			ds.Close()
+			return fmt.Errorf("write %s: %w", path, err)
+		}
 		for _, c := range cols {
 			v := 0
 			if c.om[p.ID] {
 				v = 1
 			}
-			ft.SetFieldValue(fl[c.name], v)
+			if err := ft.SetFieldValue(fl[c.name], v); err != nil {
+				ds.Close()
+				return fmt.Errorf("write %s field %s: %w", path, c.name, err)
+			}
 		}
 		if err := layer.UpdateFeature(ft); err != nil {
 			ds.Close()

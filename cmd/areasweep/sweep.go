@@ -493,9 +493,8 @@ func (s *session) buildFamily() error {
 	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
 	s.logf("extent family: %d members built in %.1f s", len(fam.Members), time.Since(t0).Seconds())
 	if err != nil {
-		if errors.Is(err, extent.ErrTooManyMembers) {
-			return badInput(err)
-		}
+		// Every failure here comes from the region, point or polygon inputs
+		// or from settings asking for too many extents.
 		return badInput(err)
 	}
 	s.fam = fam
