@@ -82,11 +82,27 @@ func TestScoreWorkersAgree(t *testing.T) {
 		t.Fatal(err)
 	}
 	var scores []metrics.Scores
+	var previews [][]float64
 	for _, workers := range []int{1, 3} {
-		accs, st, err := r.Score(g, fam, layout, Options{Workers: workers})
+		valid := extent.NewValid(g.Cells())
+		pv := NewPreview(g, 50)
+		accs, st, err := r.Score(g, fam, layout, Options{Workers: workers, Valid: valid, Preview: pv})
 		if err != nil {
 			t.Fatal(err)
 		}
+		n := 0
+		for i := 0; i < g.Cells(); i++ {
+			if valid.Has(i) != (i%97 != 0) {
+				t.Fatalf("workers=%d: cell %d valid=%v", workers, i, valid.Has(i))
+			}
+			if valid.Has(i) {
+				n++
+			}
+		}
+		if int64(n) != accs[0].Cells() {
+			t.Errorf("workers=%d: %d valid bits, %d cells scored", workers, n, accs[0].Cells())
+		}
+		previews = append(previews, pv.Values)
 		wantCells := int64(w*h - (w*h+96)/97)
 		if accs[0].Cells() != wantCells {
 			t.Errorf("workers=%d: %d cells, want %d", workers, accs[0].Cells(), wantCells)
@@ -102,6 +118,9 @@ func TestScoreWorkersAgree(t *testing.T) {
 	}
 	if fmt.Sprint(scores[0]) != fmt.Sprint(scores[1]) {
 		t.Error("scores differ between 1 and 3 workers")
+	}
+	if fmt.Sprint(previews[0]) != fmt.Sprint(previews[1]) {
+		t.Error("previews differ between 1 and 3 workers")
 	}
 }
 
