@@ -333,11 +333,18 @@ func (g *Grid) RowLonLat(row int, lons, lats []float64) {
 // true area of a block comes from the ellipsoidal area of its outline
 // (densified along the block edges) after transforming to WGS84.
 func (g *Grid) RowAreas(row int, dst []float64) []float64 {
+	return g.RowAreasRange(row, 0, g.Width, dst)
+}
+
+// RowAreasRange is RowAreas for the cells c0 <= c < c1 of row only:
+// dst[c-c0] is the area of cell c.
+func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 	gt := g.GeoTransform
-	if len(dst) < g.Width {
-		dst = make([]float64, g.Width)
+	n := c1 - c0
+	if cap(dst) < n {
+		dst = make([]float64, n)
 	}
-	dst = dst[:g.Width]
+	dst = dst[:n]
 	if g.Geographic {
 		top := gt[3] + float64(row)*gt[5]
 		bot := top + gt[5]
@@ -355,8 +362,8 @@ func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 		return dst
 	}
 	br := row / g.factorStep
-	for c := range dst {
-		dst[c] = planar * g.blockFactor[br*g.factorW+c/g.factorStep]
+	for i := range dst {
+		dst[i] = planar * g.blockFactor[br*g.factorW+(c0+i)/g.factorStep]
 	}
 	return dst
 }

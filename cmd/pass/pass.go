@@ -114,8 +114,9 @@ type block struct {
 	buf          []float64
 }
 
-// each reads every block in order and sends it to out; buffers come back
-// through free. It stops at the first read error.
+// each reads every block in order and sends it to out, still encoded (the
+// consumer decodes, so that decoding runs on the workers); buffers come
+// back through free. It stops at the first read error.
 func (r *Raster) each(out chan<- block, free chan []float64, size int) error {
 	defer close(out)
 	st := r.band.Structure()
@@ -125,7 +126,6 @@ func (r *Raster) each(out chan<- block, free chan []float64, size int) error {
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
 			return fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
 		}
-		r.decode(buf)
 		out <- block{b.X0, b.Y0, b.W, b.H, buf}
 	}
 	return nil
@@ -150,6 +150,7 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (exte
 	go func() { errc <- r.each(blocks, free, 0) }()
 	done, total := 0, r.Blocks()
 	for b := range blocks {
+		r.decode(b.buf)
 		for y := 0; y < b.h; y++ {
 			base := (b.y0+y)*g.Width + b.x0
 			for x := 0; x < b.w; x++ {
@@ -324,11 +325,16 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 
 // scoreBlock adds every valid cell of b to the accumulators of its extents.
 func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview, valid extent.Valid) {
+	r.decode(b.buf)
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
-		areas = g.RowAreas(row, areas)
-		for x := 0; x < b.w; x++ {
-			weights[x] = int64(math.Round(areas[b.x0+x] * AreaUnitsPerKm2))
+		areas = g.RowAreasRange(row, b.x0, b.x0+b.w, areas)
+		lastA, lastW := -1.0, int64(0)
+		for x, a := range areas {
+			if a != lastA { // constant along rows of most grids
+				lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
+			}
+			weights[x] = lastW
 		}
 		base := row*g.Width + b.x0
 		vals := b.buf[y*b.w : (y+1)*b.w]
