@@ -69,7 +69,7 @@ func defaultRunOptions() RunOptions {
 }
 
 const runExample = `  # everything from flags (negative buffer distances need the = form)
-  areasweep run --model maxent=suit.tif --occurrences points.csv --region m.gpkg \
+  areasweep run --model gbm=suit.tif --occurrences points.csv --region m.gpkg \
     --region-buffers=-50,100,250,500 --point-buffers 50,100 --e 0.05,0.1 \
     --iterations 1000 --seed 7 --out sweep1
 

@@ -464,7 +464,7 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 // namedPaths accepts a list of "NAME=PATH" texts, a single such text, or a
 // mapping NAME: PATH (kept in file order). Paths are resolved against dir.
 func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
-	example := fmt.Sprintf("write for example\n    %s:\n      - maxent=models/maxent.tif\n      - glm=models/glm.tif", key)
+	example := fmt.Sprintf("write for example\n    %s:\n      - gbm=models/gbm.tif\n      - glm=models/glm.tif", key)
 	one := func(n *yaml.Node, text string) (string, error) {
 		name, p, err := ParseNamedPath(text)
 		if err != nil {
@@ -525,7 +525,7 @@ var nameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,40}$`)
 // letters, digits, '_', '-' or '.'; PATH is not empty. Spaces around either
 // part are removed.
 func ParseNamedPath(s string) (name, path string, err error) {
-	const advice = "write NAME=PATH, where NAME is 1 to 40 letters, digits, '_', '-' or '.', for example maxent=models/maxent.tif"
+	const advice = "write NAME=PATH, where NAME is 1 to 40 letters, digits, '_', '-' or '.', for example gbm=models/gbm.tif"
 	i := strings.IndexByte(s, '=')
 	if i < 0 {
 		return "", "", fmt.Errorf("%w: %q has no '='; %s", ErrNamedPath, s, advice)

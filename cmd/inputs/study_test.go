@@ -20,7 +20,7 @@ func ptr[T any](v T) *T { return &v }
 // fullStudy uses every key once, with relative and absolute paths.
 const fullStudy = `# a complete study
 model:
-  - maxent=models/maxent.tif
+  - gbm=models/gbm.tif
   - glm=/abs/glm.tif
 occurrences: occ/points.csv
 occurrences-crs: EPSG:32633
@@ -48,7 +48,7 @@ membership-tif: false
 func fullStudyWant(dir string) *Study {
 	j := func(p string) string { return filepath.Join(dir, p) }
 	return &Study{
-		Model:              []string{"maxent=" + j("models/maxent.tif"), "glm=/abs/glm.tif"},
+		Model:              []string{"gbm=" + j("models/gbm.tif"), "glm=/abs/glm.tif"},
 		Occurrences:        ptr(j("occ/points.csv")),
 		OccurrencesCRS:     ptr("EPSG:32633"),
 		Region:             ptr(j("region.gpkg")),
@@ -163,7 +163,7 @@ func TestParseStudyErrors(t *testing.T) {
 		{"nested list item", "e: [[1]]\n", ErrBadValue, 1, "e", []string{"item 1 is a list"}},
 		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"--e: item 2", "is empty"}},
 		{"mapping for list", "e:\n  a: 1\n", ErrBadValue, 2, "e", []string{"expected a list of numbers"}},
-		{"model without =", "model:\n  - maxent.tif\n", ErrNamedPath, 2, "model", []string{`"maxent.tif" has no '='`, "maxent=models/maxent.tif"}},
+		{"model without =", "model:\n  - gbm.tif\n", ErrNamedPath, 2, "model", []string{`"gbm.tif" has no '='`, "gbm=models/gbm.tif"}},
 		{"model bad name", "model:\n  - ok=a.tif\n  - \"my model=b.tif\"\n", ErrNamedPath, 3, "model", []string{`name "my model"`}},
 		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
 		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
@@ -305,7 +305,7 @@ func TestParseNamedPath(t *testing.T) {
 		name, in, wantName, wantPath string
 		wantErr                      string // fragment; "" means success
 	}{
-		{"simple", "maxent=models/m.tif", "maxent", "models/m.tif", ""},
+		{"simple", "gbm=models/m.tif", "gbm", "models/m.tif", ""},
 		{"allowed characters", "A-b_c.9=x", "A-b_c.9", "x", ""},
 		{"first = splits", "m=a=b.tif", "m", "a=b.tif", ""},
 		{"spaces trimmed", "  m =  p.tif ", "m", "p.tif", ""},
