@@ -574,9 +574,17 @@ func TestDemo(t *testing.T) {
 			t.Errorf("demo output %s missing", f)
 		}
 	}
-	// Re-render from results.json.
-	if _, se, code := runBin(t, "report", out); code != 0 {
-		t.Errorf("report: exit %d: %s", code, se)
+	// Re-render from results.json: refused without --force, since the
+	// report files exist; with --force the same bytes come back.
+	before, _ := os.ReadFile(filepath.Join(out, "report.html"))
+	if _, se, code := runBin(t, "report", out); code != 2 || !strings.Contains(se, "--force") {
+		t.Errorf("report without --force: exit %d: %s", code, se)
+	}
+	if _, se, code := runBin(t, "report", out, "--force"); code != 0 {
+		t.Errorf("report --force: exit %d: %s", code, se)
+	}
+	if after, _ := os.ReadFile(filepath.Join(out, "report.html")); !bytes.Equal(before, after) {
+		t.Error("re-rendered report.html differs from the run's")
 	}
 }
 

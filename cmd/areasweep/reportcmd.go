@@ -12,19 +12,21 @@ import (
 
 // ReportOptions re-renders a finished run's report.
 type ReportOptions struct {
-	IO  *IO
-	Dir string
+	IO    *IO
+	Dir   string
+	Force bool
 }
 
 func newReportCmd(streams *IO, runF func(*ReportOptions) error) *cobra.Command {
 	opts := &ReportOptions{IO: streams}
-	return &cobra.Command{
+	cmd := &cobra.Command{
 		Use:   "report DIR",
 		Short: "Re-render the report of a finished run from its results.json",
 		Long: `report reads DIR/results.json, recomputes the sensitivity analysis and rewrites
 DIR/report.html, DIR/methods.md and DIR/figures/ (each file replaced atomically).
-The scores themselves are not recomputed.`,
-		Example: "  areasweep report areasweep-out",
+The scores themselves are not recomputed. Existing report files are replaced only
+with --force.`,
+		Example: "  areasweep report areasweep-out --force",
 		Args:    cobra.ExactArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			opts.Dir = args[0]
@@ -34,12 +36,21 @@ The scores themselves are not recomputed.`,
 			return reportRun(opts)
 		},
 	}
+	cmd.Flags().BoolVar(&opts.Force, "force", false, "replace the report files already in DIR")
+	return cmd
 }
 
 func reportRun(o *ReportOptions) error {
 	path := filepath.Join(o.Dir, "results.json")
 	if _, err := os.Stat(path); err != nil {
 		return badInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
+	}
+	if !o.Force {
+		for _, f := range []string{"report.html", "methods.md", "figures"} {
+			if _, err := os.Stat(filepath.Join(o.Dir, f)); err == nil {
+				return badInput(fmt.Errorf("%s already holds %s; add --force to re-render the report in place", o.Dir, f))
+			}
+		}
 	}
 	r, err := report.Load(path)
 	if err != nil {
