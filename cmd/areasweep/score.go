@@ -14,10 +14,29 @@ import (
 	"areasweep/report"
 )
 
-// modelPoints are one model's values at the scored points.
+// modelPoints are one model's values at the scored points where it has
+// data, by role, with the test points' ids in the same order.
 type modelPoints struct {
-	vals  []float64
-	valid []bool
+	train, test []float64
+	testIDs     []int
+}
+
+// split sorts the model's values at the points (vals, valid from Sample)
+// into training and test values of the scored points it has data at.
+func (s *session) split(vals []float64, valid []bool) modelPoints {
+	var mp modelPoints
+	for j, p := range s.points {
+		if p.Status != "scored" || !valid[j] {
+			continue
+		}
+		if p.Role == "train" {
+			mp.train = append(mp.train, vals[j])
+		} else {
+			mp.test = append(mp.test, vals[j])
+			mp.testIDs = append(mp.testIDs, p.ID)
+		}
+	}
+	return mp
 }
 
 // scoreModel samples model i at the points, streams it once through the
@@ -99,12 +118,8 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	// Training-presence thresholds come from all of the model's scored
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
-	set.ThresholdTrain = []float64{}
-	for j, p := range s.points {
-		if p.Status == "scored" && p.Role == "train" && valid[j] {
-			set.ThresholdTrain = append(set.ThresholdTrain, vals[j])
-		}
-	}
+	mp := s.split(vals, valid)
+	set.ThresholdTrain = append([]float64{}, mp.train...)
 	// Presence values per extent: only points inside the extent count.
 	presence := func(k int, role string) []float64 {
 		bit := uint64(1) << uint(k)
@@ -116,12 +131,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		}
 		return out
 	}
-	nTest := 0
-	for j, p := range s.points {
-		if p.Status == "scored" && p.Role == "test" && valid[j] {
-			nTest++
-		}
-	}
+	nTest := len(mp.test)
 	for k, mem := range fam.Members {
 		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 		switch mem.Status {
@@ -177,7 +187,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if err := s.rings(m.Name, accs, presence); err != nil {
 		return err
 	}
-	s.omissions(m.Name, vals, valid, layout)
+	s.omissions(m.Name, mp)
 	return nil
 }
 
@@ -256,20 +266,8 @@ func (s *session) rings(model string, accs []*metrics.Accumulator, presence func
 // omissions lists, per threshold, the test points the model omits. The
 // thresholds come from the training presences and fixed values only, so
 // the lists do not depend on the extent.
-func (s *session) omissions(model string, vals []float64, valid []bool, layout *metrics.Layout) {
-	var train, test []float64
-	var testIDs []int
-	for j, p := range s.points {
-		if p.Status != "scored" || !valid[j] {
-			continue
-		}
-		if p.Role == "train" {
-			train = append(train, vals[j])
-		} else {
-			test = append(test, vals[j])
-			testIDs = append(testIDs, p.ID)
-		}
-	}
+func (s *session) omissions(model string, mp modelPoints) {
+	train, test, testIDs := mp.train, mp.test, mp.testIDs
 	type th struct {
 		name string
 		v    float64

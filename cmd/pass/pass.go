@@ -117,7 +117,7 @@ type block struct {
 // each reads every block in order and sends it to out, still encoded (the
 // consumer decodes, so that decoding runs on the workers); buffers come
 // back through free. It stops at the first read error.
-func (r *Raster) each(out chan<- block, free chan []float64, size int) error {
+func (r *Raster) each(out chan<- block, free chan []float64) error {
 	defer close(out)
 	st := r.band.Structure()
 	for b, ok := st.FirstBlock(), true; ok; b, ok = b.Next() {
@@ -147,7 +147,7 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (exte
 	st := r.band.Structure()
 	free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
 	errc := make(chan error, 1)
-	go func() { errc <- r.each(blocks, free, 0) }()
+	go func() { errc <- r.each(blocks, free) }()
 	done, total := 0, r.Blocks()
 	for b := range blocks {
 		r.decode(b.buf)
@@ -298,7 +298,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		}(&parts[w])
 	}
 	errc := make(chan error, 1)
-	go func() { errc <- r.each(blocks, free, 0) }()
+	go func() { errc <- r.each(blocks, free) }()
 	go func() { wg.Wait(); close(doneBlocks) }()
 	done, total := 0, r.Blocks()
 	for range doneBlocks {

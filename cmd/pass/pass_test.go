@@ -44,6 +44,23 @@ func writeTestRaster(tb testing.TB, path string, w, h int) {
 	}
 }
 
+// openTestRaster writes a w x h test raster (writeTestRaster) in a temporary
+// directory and opens its grid and band.
+func openTestRaster(tb testing.TB, w, h int) (*extent.Grid, *Raster) {
+	tb.Helper()
+	path := filepath.Join(tb.TempDir(), "m.tif")
+	writeTestRaster(tb, path, w, h)
+	g, err := extent.OpenGrid(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	r, err := Open(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return g, r
+}
+
 // fullFamily makes a family of n members each holding every valid cell.
 func fullFamily(g *extent.Grid, n int) *extent.Family {
 	f := &extent.Family{Grid: g, Mask: make([]uint64, g.Cells())}
@@ -64,17 +81,8 @@ func fullFamily(g *extent.Grid, n int) *extent.Family {
 // identical scores) for 1 and 3 workers, and counts every valid cell once
 // (by construction: 1 in 97 cells is no-data).
 func TestScoreWorkersAgree(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "m.tif")
 	w, h := 300, 200
-	writeTestRaster(t, path, w, h)
-	g, err := extent.OpenGrid(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	r, err := Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	g, r := openTestRaster(t, w, h)
 	defer r.Close()
 	fam := fullFamily(g, 3)
 	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
@@ -128,17 +136,8 @@ func TestScoreWorkersAgree(t *testing.T) {
 // cell areas, locating each value and updating every extent) on a 2000 x
 // 2000 raster: cell-extent updates per second.
 func BenchmarkScorePass(b *testing.B) {
-	path := filepath.Join(b.TempDir(), "m.tif")
 	w, h := 2000, 2000
-	writeTestRaster(b, path, w, h)
-	g, err := extent.OpenGrid(path)
-	if err != nil {
-		b.Fatal(err)
-	}
-	r, err := Open(path)
-	if err != nil {
-		b.Fatal(err)
-	}
+	g, r := openTestRaster(b, w, h)
 	defer r.Close()
 	vals := make([]float64, 1000)
 	for i := range vals {
