@@ -1,0 +1,68 @@
+// Command sweepbench measures a full areasweep run against the physical
+// limit of the machine: a bare block read of the same rasters through GDAL
+// on all cores. It generates a synthetic study at each requested size
+// (Float32 deflate GeoTIFFs with 256 x 256 tiles, EPSG:4326, 500 training
+// and 500 test records, two models), then measures, interleaved:
+//
+//	a  bare GDAL block read of every model raster on all cores, touching each value
+//	b  the full `areasweep run` (family, passes, scores, analysis, report, outputs)
+//	c  a straightforward per-extent implementation (mask, collect, sort, score),
+//	   written here as a baseline (AUC only; up to -baseline-max-cells)
+//
+// and prints b/a, c/b, the run's peak RSS, cells per second, and how b grows
+// with the number of cells and of extents. `make bench` runs it.
+package main
+
+import (
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+)
+
+func main() {
+	var (
+		cellsFlag   = flag.String("cells", "25e6,100e6", "comma-separated grid sizes in cells")
+		extentsFlag = flag.String("extents", "5,13,20,60", "comma-separated family sizes (about this many extents)")
+		bin         = flag.String("bin", "bin/areasweep", "areasweep binary to measure")
+		dir         = flag.String("dir", filepath.Join(os.TempDir(), "areasweep-bench"), "where the synthetic studies are generated (kept and reused)")
+		baseMax     = flag.Float64("baseline-max-cells", 30e6, "largest grid on which the per-extent baseline runs")
+		reps        = flag.Int("reps", 1, "repetitions of each measurement (the fastest is kept)")
+		iterations  = flag.Int("iterations", 1000, "partial ROC bootstrap iterations of the run")
+	)
+	flag.Parse()
+	cells, err := parseList(*cellsFlag)
+	if err != nil {
+		fail("-cells: %v", err)
+	}
+	extents, err := parseList(*extentsFlag)
+	if err != nil {
+		fail("-extents: %v", err)
+	}
+	if _, err := os.Stat(*bin); err != nil {
+		fail("%s not found: build it first (make build)", *bin)
+	}
+	b := &bench{bin: *bin, reps: max(1, *reps), iterations: *iterations, baselineMax: *baseMax}
+	if err := b.runAll(*dir, cells, extents); err != nil {
+		fail("%v", err)
+	}
+}
+
+func parseList(s string) ([]float64, error) {
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+		if err != nil || v <= 0 {
+			return nil, fmt.Errorf("%q is not a positive number", f)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+func fail(format string, args ...any) {
+	fmt.Fprintf(os.Stderr, "sweepbench: "+format+"\n", args...)
+	os.Exit(2)
+}
