@@ -6,9 +6,13 @@
 // areas. Build makes the Family from a Spec: the base study region, its
 // geodesic buffers in and out, discs around occurrences, the occurrences'
 // convex hull and its buffers, occupied ecoregion units (and those touching
-// them), user polygons and the whole raster. Membership is one uint64 word
-// per cell, bit k for member k, so up to MaxMembers (64) extents are held in
-// 8 bytes per cell and one pass over the cells serves them all.
+// them), user polygons and the whole raster. Each member's cells are held
+// as runs of columns per row (Family.Runs, Family.Span, Family.Has), built
+// straight from the polygons' fill, the distance fields (one band of rows
+// at a time) and the hull test: memory follows the members' boundaries,
+// not the number of cells, and up to MaxMembers (1024) extents are held.
+// Members nest in chains, so a scoring pass adds each cell once per chain
+// (Family.Groups) rather than once per member.
 //
 // A cell belongs to a polygon when its centre is inside (even-odd rule over
 // all rings; a centre exactly on an edge follows the half-open rule of Fill,

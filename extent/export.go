@@ -37,13 +37,12 @@ func (f *Family) memberRaster(k int) (*godal.Dataset, error) {
 
 func (f *Family) fillMemberBand(band godal.Band, k int) error {
 	g := f.Grid
-	bit := uint64(1) << uint(k)
 	row := make([]byte, g.Width)
 	for r := 0; r < g.Height; r++ {
-		base := r * g.Width
-		for c := range row {
-			row[c] = 0
-			if f.Mask[base+c]&bit != 0 {
+		clear(row)
+		runs := f.cells[k].rows[r]
+		for i := 0; i < len(runs); i += 2 {
+			for c := runs[i]; c < runs[i+1]; c++ {
 				row[c] = 1
 			}
 		}

@@ -4,8 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/bits"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"sync"
@@ -18,8 +18,10 @@ import (
 	"areasweep/extent/geodesy"
 )
 
-// MaxMembers is the largest family: one bit of a uint64 per member.
-const MaxMembers = 64
+// MaxMembers is the largest family. Membership is held as row runs per
+// member, so the limit is not a word size: it bounds the memory of the
+// scoring pass, which keeps one accumulator per member and worker.
+const MaxMembers = 1024
 
 // Kinds of family member.
 const (
@@ -41,7 +43,7 @@ const (
 
 // ErrTooManyMembers is returned when the settings ask for more than
 // MaxMembers extents.
-var ErrTooManyMembers = errors.New("extent: more than 64 extents requested; use fewer buffer distances")
+var ErrTooManyMembers = fmt.Errorf("extent: more than %d extents requested; use fewer buffer distances", MaxMembers)
 
 // LonLat is a point in WGS84 degrees.
 type LonLat struct{ Lon, Lat float64 }
@@ -95,16 +97,17 @@ type Member struct {
 	DistanceKm float64
 }
 
-// Family is the set of extents on the grid. Mask holds one word per cell:
-// bit i is set when the cell belongs to Members[i]. Only valid cells, and
-// only members with Status "ok", have bits set.
+// Family is the set of extents on the grid. Each member's cells are held
+// as runs of columns per row (see Runs and Has), so memory follows the
+// members' boundaries rather than the number of cells. Only valid cells,
+// and only members with Status "ok", have cells.
 type Family struct {
 	Grid     *Grid
 	Members  []Member
-	Mask     []uint64
 	Chains   map[string][]int
 	Warnings []string
 	Base     Shape
+	cells    []cellRuns // per member
 }
 
 // Valid is a per-cell bitset of the cells with data in the reference model.
@@ -130,13 +133,26 @@ type builder struct {
 	f     *Family
 }
 
-func (b *builder) add(m Member) (bit uint64, err error) {
+// add appends a member with no cells and returns its index.
+func (b *builder) add(m Member) (int, error) {
 	if len(b.f.Members) >= MaxMembers {
 		return 0, ErrTooManyMembers
 	}
 	m.Status = StatusOK
 	b.f.Members = append(b.f.Members, m)
-	return 1 << uint(len(b.f.Members)-1), nil
+	b.f.cells = append(b.f.cells, newCellRuns(b.g.Height))
+	return len(b.f.Members) - 1, nil
+}
+
+// fillRuns adds the cells Fill finds inside mp to member k.
+func (b *builder) fillRuns(k int, mp orb.MultiPolygon) {
+	rows := b.f.cells[k].rows
+	Fill(b.g, mp, func(row, c0, c1 int) {
+		rows[row] = append(rows[row], int32(c0), int32(c1))
+	})
+	for r := range rows {
+		rows[r] = canonical(rows[r])
+	}
 }
 
 // Build makes the family on grid g, clipped to the valid cells (nil: every
@@ -144,7 +160,7 @@ func (b *builder) add(m Member) (bit uint64, err error) {
 // -1 outside). A run that learns the valid cells only in its first scoring
 // pass builds with nil and calls Clip afterwards.
 func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
-	f := &Family{Grid: g, Mask: make([]uint64, g.Cells()), Chains: map[string][]int{}}
+	f := &Family{Grid: g, Chains: map[string][]int{}}
 	b := &builder{g: g, valid: valid, f: f}
 	if spec.Region == "" {
 		return nil, errors.New("extent: no base region given (--region FILE)")
@@ -155,17 +171,12 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		return nil, err
 	}
 	f.Base = base
-	baseBit, err := b.add(Member{ID: "base", Kind: KindBase, Params: "file=" + baseName(spec.Region)})
+	baseK, err := b.add(Member{ID: "base", Kind: KindBase, Params: "file=" + baseName(spec.Region)})
 	if err != nil {
 		return nil, err
 	}
-	Fill(g, base.Grid, func(row, c0, c1 int) {
-		i := row * g.Width
-		for c := c0; c < c1; c++ {
-			f.Mask[i+c] |= baseBit
-		}
-	})
-	if err := b.regionBuffers(base, baseBit, spec.RegionBuffersKm); err != nil {
+	b.fillRuns(baseK, base.Grid)
+	if err := b.regionBuffers(base, baseK, spec.RegionBuffersKm); err != nil {
 		return nil, err
 	}
 	if len(spec.PointBuffersKm) > 0 {
@@ -185,7 +196,7 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		}
 	}
 	if spec.Ecoregions != "" {
-		if err := b.ecoregions(spec, baseBit, trainCells); err != nil {
+		if err := b.ecoregions(spec, baseK, trainCells); err != nil {
 			return nil, err
 		}
 	}
@@ -195,23 +206,18 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		if err != nil {
 			return nil, err
 		}
-		bit, err := b.add(Member{ID: "user_" + x.Name, Kind: KindUser, Params: "file=" + baseName(x.Path)})
+		k, err := b.add(Member{ID: "user_" + x.Name, Kind: KindUser, Params: "file=" + baseName(x.Path)})
 		if err != nil {
 			return nil, err
 		}
-		Fill(g, s.Grid, func(row, c0, c1 int) {
-			i := row * g.Width
-			for c := c0; c < c1; c++ {
-				f.Mask[i+c] |= bit
-			}
-		})
+		b.fillRuns(k, s.Grid)
 	}
-	wholeBit, err := b.add(Member{ID: "whole_raster", Kind: KindWholeRaster, Params: "all valid cells"})
+	wholeK, err := b.add(Member{ID: "whole_raster", Kind: KindWholeRaster, Params: "all valid cells"})
 	if err != nil {
 		return nil, err
 	}
-	for i := range f.Mask {
-		f.Mask[i] |= wholeBit
+	for r := range f.cells[wholeK].rows {
+		f.cells[wholeK].rows[r] = rowRuns{0, int32(g.Width)}
 	}
 	f.Chains[chainRegion] = append(f.Chains[chainRegion], len(f.Members)-1)
 	b.finish(trainCells, testCells)
@@ -241,7 +247,7 @@ func kmID(d float64) string {
 // of the base boundary, and to a shrunk member when its centre is inside
 // and farther than |d| from the boundary; distances are geodesic on WGS84
 // to the boundary densified every cell side (boundaryLonLat).
-func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error {
+func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	if len(ds) == 0 {
 		b.f.Chains[chainRegion] = []int{0}
 		return nil
@@ -256,8 +262,9 @@ func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error 
 		return fmt.Errorf("extent: base region boundary: %w", err)
 	}
 	type buf struct {
-		bit uint64
+		k   int
 		d   float64 // metres, signed
+		cut int     // index of |d| in cuts
 	}
 	var bufs []buf
 	var chain []int
@@ -266,38 +273,48 @@ func (b *builder) regionBuffers(base Shape, baseBit uint64, ds []float64) error 
 		if d == 0 {
 			continue
 		}
-		bit, err := b.add(Member{ID: "region_" + kmID(d), Kind: KindRegionBuffer, Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
+		k, err := b.add(Member{ID: "region_" + kmID(d), Kind: KindRegionBuffer, Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
 		if err != nil {
 			return err
 		}
-		bufs = append(bufs, buf{bit, d * 1000})
+		bufs = append(bufs, buf{k: k, d: d * 1000})
 		maxD = math.Max(maxD, math.Abs(d)*1000)
 	}
 	// Chain order: shrunk (most negative first), base, grown.
 	for _, bf := range bufs {
 		if bf.d < 0 {
-			chain = append(chain, memberIndex(bf.bit))
+			chain = append(chain, bf.k)
 		}
 	}
-	chain = append(chain, 0)
-	b.f.Members[0].Chain = chainRegion
+	chain = append(chain, baseK)
+	b.f.Members[baseK].Chain = chainRegion
 	for _, bf := range bufs {
 		if bf.d > 0 {
-			chain = append(chain, memberIndex(bf.bit))
+			chain = append(chain, bf.k)
 		}
 	}
 	b.f.Chains[chainRegion] = chain
 	reach := newReach(lats, lons, maxD)
-	cuts := make([]float64, len(bufs))
-	for k, bf := range bufs {
-		cuts[k] = math.Abs(bf.d)
+	var abs []float64
+	for _, bf := range bufs {
+		abs = append(abs, math.Abs(bf.d))
 	}
-	b.distanceField(ix, reach, maxD, cuts, func(i int, dist float64) {
-		inside := b.f.Mask[i]&baseBit != 0
+	cuts := sortedUnique(abs)
+	for i := range bufs {
+		bufs[i].cut = sort.SearchFloat64s(cuts, math.Abs(bufs[i].d))
+	}
+	baseRows := b.f.cells[baseK].rows
+	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
+		// A grown member is the base or within d of its boundary; a shrunk
+		// one is the base minus the cells within |d|.
 		for _, bf := range bufs {
-			if bf.d > 0 && (inside || dist <= bf.d) || bf.d < 0 && inside && dist > -bf.d {
-				b.f.Mask[i] |= bf.bit
+			var r rowRuns
+			if bf.d > 0 {
+				r = union(nil, baseRows[row], near[bf.cut])
+			} else {
+				r = minus(nil, baseRows[row], near[bf.cut])
 			}
+			b.f.cells[bf.k].rows[row] = r
 		}
 	})
 	return nil
@@ -356,7 +373,6 @@ func seamEdge(a, b orb.Point) bool {
 	return anti(a[0]) && anti(b[0]) || math.Abs(a[1]) == 90 && a[1] == b[1]
 }
 
-func memberIndex(bit uint64) int { return bits.TrailingZeros64(bit) }
 
 // pointBuffers adds, for each radius, the union of geodesic discs around pts.
 func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
@@ -366,28 +382,27 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 	if err != nil {
 		return fmt.Errorf("extent: point buffers: %w", err)
 	}
-	var bits []uint64
+	var members []int
 	var dm []float64
 	maxD := 0.0
 	for _, d := range ds {
 		if d <= 0 {
 			return fmt.Errorf("extent: point buffer distance %g km must be positive", d)
 		}
-		bit, err := b.add(Member{ID: "points_" + kmID(d), Kind: KindPointBuffer, Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
+		k, err := b.add(Member{ID: "points_" + kmID(d), Kind: KindPointBuffer, Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
 		if err != nil {
 			return err
 		}
-		b.f.Chains[chainPoints] = append(b.f.Chains[chainPoints], memberIndex(bit))
-		bits = append(bits, bit)
+		b.f.Chains[chainPoints] = append(b.f.Chains[chainPoints], k)
+		members = append(members, k)
 		dm = append(dm, d*1000)
 		maxD = math.Max(maxD, d*1000)
 	}
 	reach := newReach(lats, lons, maxD)
-	b.distanceField(ix, reach, maxD, dm, func(i int, dist float64) {
-		for k, d := range dm {
-			if dist <= d {
-				b.f.Mask[i] |= bits[k]
-			}
+	// ds is sorted and unique, so dm is the cut list itself.
+	b.distanceField(ix, reach, maxD, dm, func(row int, near []rowRuns) {
+		for j, k := range members {
+			b.f.cells[k].rows[row] = near[j]
 		}
 	})
 	return nil
@@ -397,13 +412,15 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 // with one query when no cut passes through them.
 const tileSide = 16
 
-// distanceField calls set(i, dist) for every cell i of the grid; each call
-// writes only its own cell, from several goroutines. dist is the geodesic
-// distance from the cell centre to the nearest site of ix, or any value
-// above maxD (+Inf among them) when that distance exceeds maxD.
+// distanceField calls rowDone(row, near) once for every row of the grid,
+// from several goroutines (never twice for a row): near[j] holds the runs
+// of the row's cells whose geodesic distance from the cell centre to the
+// nearest site of ix is at most cuts[j]. cuts are metres, ascending,
+// unique and all <= maxD; the slices in near are the callee's to keep.
 //
-// Only the class of each cell matters to the callers: which of the cut
-// distances (metres, all <= maxD) the distance lies below. The distance
+// Only the class of each cell matters: which of the cut distances the
+// distance lies below. Each worker holds the distances of one band of
+// tileSide rows at a time, never the whole grid. The distance
 // function is 1-Lipschitz, which saves most queries:
 //
 //   - a tile of tileSide x tileSide cells gets one query at its centre cell,
@@ -418,7 +435,7 @@ const tileSide = 16
 //     cut receive D.
 //
 // The cost so stays near the buffers' edges instead of over their area.
-func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, set func(i int, dist float64)) {
+func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
 	g := b.g
 	gap := func(d float64) float64 {
 		m := math.Inf(1)
@@ -440,7 +457,11 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				lons[k] = make([]float64, g.Width)
 				lats[k] = make([]float64, g.Width)
 			}
+			dist := make([]float64, tileSide*g.Width)
+			open := make([]int32, len(cuts))
 			for r0 := range bands {
+				off := r0 * g.Width
+				set := func(i int, d float64) { dist[i-off] = d }
 				r1 := min(r0+tileSide, g.Height)
 				for r := r0; r < r1; r++ {
 					k := r - r0
@@ -473,6 +494,10 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width))
 				}
+				for r := r0; r < r1; r++ {
+					k := r - r0
+					rowDone(r, cutRuns(dist[k*g.Width:(k+1)*g.Width], cuts, open))
+				}
 			}
 		}()
 	}
@@ -481,6 +506,40 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 	}
 	close(bands)
 	wg.Wait()
+}
+
+// cutRuns returns, for each cut j (ascending), the runs of the cells of a
+// row whose distance is at most cuts[j]. Cut runs nest, so one scan
+// tracking each cell's class (the first cut at or above its distance)
+// opens and closes them; open is scratch of len(cuts).
+func cutRuns(dist []float64, cuts []float64, open []int32) []rowRuns {
+	m := len(cuts)
+	near := make([]rowRuns, m)
+	prev, lastD := m, math.NaN()
+	for c, d := range dist {
+		if d == lastD {
+			continue
+		}
+		lastD = d
+		cls := sort.SearchFloat64s(cuts, d)
+		if cls == prev {
+			continue
+		}
+		if cls < prev {
+			for j := cls; j < prev; j++ {
+				open[j] = int32(c)
+			}
+		} else {
+			for j := prev; j < cls; j++ {
+				near[j] = append(near[j], open[j], int32(c))
+			}
+		}
+		prev = cls
+	}
+	for j := prev; j < m; j++ {
+		near[j] = append(near[j], open[j], int32(len(dist)))
+	}
+	return near
 }
 
 // wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
@@ -647,7 +706,7 @@ func sortedUnique(ds []float64) []float64 {
 // ecoregions adds the union of units holding at least k training points,
 // the variant adding units that touch them, and optionally both clipped to
 // the base region.
-func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error {
+func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 	if spec.EcoregionField == "" {
 		return fmt.Errorf("extent: --ecoregions %s needs --ecoregion-field NAME (the unit id field)", spec.Ecoregions)
 	}
@@ -730,20 +789,23 @@ func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error 
 		if v.clip {
 			chain = chainEcoregions + "_clipped"
 		}
-		bit, err := b.add(Member{ID: v.id, Kind: KindEcoregions, Params: v.params, Chain: chain})
+		k, err := b.add(Member{ID: v.id, Kind: KindEcoregions, Params: v.params, Chain: chain})
 		if err != nil {
 			return err
 		}
-		b.f.Chains[chain] = append(b.f.Chains[chain], memberIndex(bit))
+		b.f.Chains[chain] = append(b.f.Chains[chain], k)
+		rows := b.f.cells[k].rows
 		for _, ui := range v.units {
 			Fill(b.g, units[ui].Shape.Grid, func(row, c0, c1 int) {
-				i := row * b.g.Width
-				for c := c0; c < c1; c++ {
-					if !v.clip || b.f.Mask[i+c]&baseBit != 0 {
-						b.f.Mask[i+c] |= bit
-					}
-				}
+				rows[row] = append(rows[row], int32(c0), int32(c1))
 			})
+		}
+		baseRows := b.f.cells[baseK].rows
+		for r := range rows {
+			rows[r] = canonical(rows[r])
+			if v.clip {
+				rows[r] = intersect(nil, rows[r], baseRows[r])
+			}
 		}
 	}
 	return nil
@@ -765,47 +827,61 @@ func (f *Family) Clip(valid Valid, trainCells, testCells []int) {
 // finish clips every member to the valid cells, measures it, counts
 // points, marks empty and duplicate members, and checks chain nesting.
 // Members whose Status is not ok keep it and are not reported again.
+//
+// Members are independent, so they are clipped and measured in parallel;
+// each member's area is still summed cell by cell in cell order (the same
+// float64 sum whatever the number of cores).
 func (b *builder) finish(trainCells, testCells []int) {
 	f, g := b.f, b.g
 	n := len(f.Members)
 	cells := make([]int64, n)
 	area := make([]float64, n)
-	hashes := make([]uint64, n)
-	hs := make([]hashState, n)
-	for i := range hs {
-		hs[i] = newHash()
-	}
-	areas := make([]float64, g.Width)
 	total := 0.0
-	for row := 0; row < g.Height; row++ {
-		areas = g.RowAreas(row, areas)
-		base := row * g.Width
-		for c := 0; c < g.Width; c++ {
-			i := base + c
-			if !b.valid.Has(i) {
-				f.Mask[i] = 0
-				continue
+	var wg sync.WaitGroup
+	wg.Add(1)
+	go func() {
+		defer wg.Done()
+		total = b.validArea()
+	}()
+	var next atomic.Int64
+	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var areas []float64
+			for {
+				k := int(next.Add(1) - 1)
+				if k >= n {
+					return
+				}
+				rows := f.cells[k].rows
+				for row, r := range rows {
+					if b.valid != nil && len(r) > 0 {
+						r = clipValid(nil, r, b.valid, row*g.Width)
+						rows[row] = r
+					}
+					for i := 0; i < len(r); i += 2 {
+						c0, c1 := int(r[i]), int(r[i+1])
+						areas = g.RowAreasRange(row, c0, c1, areas)
+						a := area[k]
+						for _, x := range areas {
+							a += x
+						}
+						area[k] = a
+						cells[k] += int64(c1 - c0)
+					}
+				}
 			}
-			total += areas[c]
-			m := f.Mask[i]
-			for m != 0 {
-				k := bits.TrailingZeros64(m)
-				m &= m - 1
-				cells[k]++
-				area[k] += areas[c]
-				hs[k].add(uint64(i))
-			}
-		}
+		}()
 	}
+	wg.Wait()
 	for k := range f.Members {
-		hashes[k] = hs[k].sum()
 		f.Members[k].Cells = cells[k]
 		f.Members[k].AreaKm2 = area[k]
 		if total > 0 {
 			f.Members[k].Share = area[k] / total
 		}
 	}
-	clear := uint64(0)
 	for k := range f.Members {
 		m := &f.Members[k]
 		if m.Status != StatusOK {
@@ -813,33 +889,40 @@ func (b *builder) finish(trainCells, testCells []int) {
 		}
 		if m.Cells == 0 {
 			m.Status = StatusEmpty
-			clear |= 1 << uint(k)
 			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell; not scored", m.ID))
 			continue
 		}
 		for j := 0; j < k; j++ {
-			if f.Members[j].Status == StatusOK && hashes[j] == hashes[k] && cells[j] == cells[k] && b.sameCells(j, k) {
+			if f.Members[j].Status == StatusOK && cells[j] == cells[k] && b.sameCells(j, k) {
 				m.Status = StatusDuplicate
 				m.DuplicateOf = f.Members[j].ID
-				clear |= 1 << uint(k)
 				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s has exactly the cells of %s; scored once, under %s", m.ID, f.Members[j].ID, f.Members[j].ID))
 				break
 			}
 		}
 	}
-	if clear != 0 {
-		for i := range f.Mask {
-			f.Mask[i] &^= clear
+	// Members that are not ok hold no cell.
+	for k := range f.Members {
+		if f.Members[k].Status != StatusOK {
+			f.cells[k] = cellRuns{rows: make([]rowRuns, g.Height)}
 		}
 	}
 	for _, ci := range trainCells {
 		if ci >= 0 {
-			countBits(f.Mask[ci], func(k int) { f.Members[k].TrainPoints++ })
+			for k := range f.Members {
+				if f.Has(k, ci) {
+					f.Members[k].TrainPoints++
+				}
+			}
 		}
 	}
 	for _, ci := range testCells {
 		if ci >= 0 {
-			countBits(f.Mask[ci], func(k int) { f.Members[k].TestPoints++ })
+			for k := range f.Members {
+				if f.Has(k, ci) {
+					f.Members[k].TestPoints++
+				}
+			}
 		}
 	}
 	// Chains: keep only members with Status ok, and check nesting.
@@ -856,7 +939,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 			}
 		}
 		for i := 1; i < len(kept); i++ {
-			if !b.nested(kept[i-1], kept[i]) {
+			if !f.nested(kept[i-1], kept[i]) {
 				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s is not inside %s; the %s chain is cut there", f.Members[kept[i-1]].ID, f.Members[kept[i]].ID, name))
 				kept = kept[:i]
 				break
@@ -880,10 +963,30 @@ func (b *builder) finish(trainCells, testCells []int) {
 	}
 }
 
+// validArea is the area of all valid cells (every cell when valid is nil),
+// summed cell by cell in cell order.
+func (b *builder) validArea() float64 {
+	g := b.g
+	total := 0.0
+	areas := make([]float64, g.Width)
+	for row := 0; row < g.Height; row++ {
+		areas = g.RowAreas(row, areas)
+		base := row * g.Width
+		for c, a := range areas {
+			if b.valid.Has(base + c) {
+				total += a
+			}
+		}
+	}
+	return total
+}
+
+// sameCells reports whether members j and k hold the same cells. Runs are
+// canonical, so equal cells mean equal runs row by row.
 func (b *builder) sameCells(j, k int) bool {
-	bj, bk := uint64(1)<<uint(j), uint64(1)<<uint(k)
-	for _, m := range b.f.Mask {
-		if (m&bj == 0) != (m&bk == 0) {
+	rj, rk := b.f.cells[j].rows, b.f.cells[k].rows
+	for row := range rj {
+		if !slices.Equal(rj[row], rk[row]) {
 			return false
 		}
 	}
@@ -891,39 +994,95 @@ func (b *builder) sameCells(j, k int) bool {
 }
 
 // nested reports whether every cell of member a is in member b.
-func (b *builder) nested(a, bb int) bool {
-	ba, bbit := uint64(1)<<uint(a), uint64(1)<<uint(bb)
-	for _, m := range b.f.Mask {
-		if m&ba != 0 && m&bbit == 0 {
+func (f *Family) nested(a, b int) bool {
+	ra, rb := f.cells[a].rows, f.cells[b].rows
+	for row := range ra {
+		if !subset(ra[row], rb[row]) {
 			return false
 		}
 	}
 	return true
 }
 
-func countBits(m uint64, fn func(k int)) {
-	for m != 0 {
-		k := bits.TrailingZeros64(m)
-		m &= m - 1
-		fn(k)
+// Has reports whether cell (row*Width + column) belongs to member k.
+func (f *Family) Has(k, cell int) bool {
+	w := f.Grid.Width
+	return f.cells[k].rows[cell/w].has(cell % w)
+}
+
+// Runs returns member k's cells in row as pairs c0, c1 of half-open column
+// runs [c0,c1), ascending, disjoint and not touching. The slice belongs to
+// the family and must not be modified.
+func (f *Family) Runs(k, row int) []int32 { return f.cells[k].rows[row] }
+
+// SpanScratch is reusable scratch memory for Span, one per goroutine.
+type SpanScratch struct{ a, b, out []int32 }
+
+// Span returns the cells of member k in row and columns [c0,c1), minus
+// the cells of member inner (none when inner < 0), as runs c0, c1, ...
+// A scoring pass uses it to walk one block of one row. The result lives
+// in s and is valid until the next call with s.
+func (f *Family) Span(k, inner, row, c0, c1 int, s *SpanScratch) []int32 {
+	s.a = clipWindow(s.a[:0], f.cells[k].rows[row], int32(c0), int32(c1))
+	if inner < 0 {
+		return s.a
 	}
+	s.b = clipWindow(s.b[:0], f.cells[inner].rows[row], int32(c0), int32(c1))
+	s.out = minus(s.out[:0], s.a, s.b)
+	return s.out
 }
 
-// hashState fingerprints a member's cells to find members with the same
-// cells; equal fingerprints are confirmed cell by cell (sameCells), so the
-// hash only needs to be fast and to spread well.
-type hashState struct{ h uint64 }
-
-func newHash() hashState { return hashState{14695981039346656037} }
-
-// add mixes a cell index into the hash: one xor-multiply step per cell
-// (the FNV-1a prime applied to the whole word) and a rotation, cheap
-// enough to run on every cell of every member.
-func (s *hashState) add(v uint64) {
-	s.h = bits.RotateLeft64((s.h^v)*1099511628211, 29)
+// clipWindow appends the runs of r intersected with [c0,c1) to dst.
+func clipWindow(dst []int32, r rowRuns, c0, c1 int32) []int32 {
+	n := len(r) / 2
+	lo, hi := 0, n
+	for lo < hi {
+		m := (lo + hi) / 2
+		if r[2*m+1] <= c0 {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	for i := lo; i < n && r[2*i] < c1; i++ {
+		dst = append(dst, max(r[2*i], c0), min(r[2*i+1], c1))
+	}
+	return dst
 }
 
-func (s *hashState) sum() uint64 { return s.h }
+// Groups returns the ok members as nested sequences, each listed from
+// smallest to largest: the family's chains (checked nested again here) and
+// one sequence per other member. A pass that adds each cell only to the
+// smallest member of each sequence that holds it, then merges the
+// accumulators up each sequence, adds a cell once per sequence instead of
+// once per member.
+func (f *Family) Groups() [][]int {
+	var out [][]int
+	used := make([]bool, len(f.Members))
+	for _, name := range f.ChainNames() {
+		var seq []int
+		for _, k := range f.Chains[name] {
+			if used[k] || f.Members[k].Status != StatusOK {
+				continue
+			}
+			if len(seq) > 0 && !f.nested(seq[len(seq)-1], k) {
+				out = append(out, seq)
+				seq = nil
+			}
+			seq = append(seq, k)
+			used[k] = true
+		}
+		if len(seq) > 0 {
+			out = append(out, seq)
+		}
+	}
+	for k, m := range f.Members {
+		if !used[k] && m.Status == StatusOK {
+			out = append(out, []int{k})
+		}
+	}
+	return out
+}
 
 // Chain returns the member indices of the named chain, smallest first.
 func (f *Family) Chain(name string) []int { return f.Chains[name] }

@@ -24,3 +24,19 @@ func godalCreateShapefile(path string) (bool, error) {
 	}
 	return true, ds.Close()
 }
+
+// sameMembership reports whether two families on one grid give every
+// member the same cells, comparing cell by cell.
+func sameMembership(a, b *Family) bool {
+	if len(a.Members) != len(b.Members) {
+		return false
+	}
+	for k := range a.Members {
+		for i := 0; i < a.Grid.Cells(); i++ {
+			if a.Has(k, i) != b.Has(k, i) {
+				return false
+			}
+		}
+	}
+	return true
+}

@@ -1,6 +1,9 @@
 package extent
 
 import (
+	"runtime"
+	"sync"
+	"sync/atomic"
 	"fmt"
 	"math"
 	"sort"
@@ -186,7 +189,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		return nil
 	}
 	ds = sortedUnique(ds)
-	var bits []uint64
+	var members []int
 	var dm []float64
 	maxD := 0.0
 	for _, d := range ds {
@@ -197,12 +200,12 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		if d > 0 {
 			id, params = "hull_"+kmID(d), fmt.Sprintf("convex hull of training points; d_km=%g", d)
 		}
-		bit, err := b.add(Member{ID: id, Kind: KindHull, Params: params, DistanceKm: d, Chain: chainHull})
+		k, err := b.add(Member{ID: id, Kind: KindHull, Params: params, DistanceKm: d, Chain: chainHull})
 		if err != nil {
 			return err
 		}
-		b.f.Chains[chainHull] = append(b.f.Chains[chainHull], memberIndex(bit))
-		bits = append(bits, bit)
+		b.f.Chains[chainHull] = append(b.f.Chains[chainHull], k)
+		members = append(members, k)
 		dm = append(dm, d*1000)
 		maxD = math.Max(maxD, d*1000)
 	}
@@ -219,20 +222,18 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		return fmt.Errorf("extent: hull boundary: %w", err)
 	}
 	g := b.g
+	// Cells within d of the hull's boundary (d > 0); ds is sorted and
+	// unique, so the positive distances are the cut list.
+	near := make([][]rowRuns, g.Height)
 	if maxD > 0 {
-		reach := newReach(lats, lons, maxD)
-		b.distanceField(ix, reach, maxD, dm, func(i int, dist float64) {
-			for k, d := range dm {
-				if d > 0 && dist <= d {
-					b.f.Mask[i] |= bits[k]
-				}
+		var cuts []float64
+		for _, d := range dm {
+			if d > 0 {
+				cuts = append(cuts, d)
 			}
-		})
-	}
-	// Cells inside the hull (all buffers contain the hull).
-	all := uint64(0)
-	for _, bt := range bits {
-		all |= bt
+		}
+		reach := newReach(lats, lons, maxD)
+		b.distanceField(ix, reach, maxD, cuts, func(row int, n []rowRuns) { near[row] = n })
 	}
 	// The box around the densified boundary holds the hull (its edges'
 	// poleward bulge included, being sampled; a pole inside the hull widens
@@ -244,15 +245,53 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 	if h.contains(0, -90) {
 		box.south, box.lonH = -90, 360
 	}
-	lonsR := make([]float64, g.Width)
-	latsR := make([]float64, g.Width)
-	for row := 0; row < g.Height; row++ {
-		g.RowLonLat(row, lonsR, latsR)
-		for c := 0; c < g.Width; c++ {
-			if !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c]) {
-				b.f.Mask[row*g.Width+c] |= all
+	// Cells inside the hull belong to every member (all buffers contain
+	// the hull). Rows are tested in parallel, each writing only its own.
+	parallelRows(g.Height, func() func(row int) {
+		lonsR := make([]float64, g.Width)
+		latsR := make([]float64, g.Width)
+		return func(row int) {
+			g.RowLonLat(row, lonsR, latsR)
+			var in rowRuns
+			for c := 0; c < g.Width; c++ {
+				if !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c]) {
+					in = appendRun(in, int32(c), int32(c+1))
+				}
 			}
+			j := 0
+			for i, k := range members {
+				if dm[i] == 0 {
+					b.f.cells[k].rows[row] = in
+					continue
+				}
+				b.f.cells[k].rows[row] = union(nil, in, near[row][j])
+				j++
+			}
+			near[row] = nil
 		}
-	}
+	})
 	return nil
+}
+
+// parallelRows calls the function made by newWorker for every row in
+// [0, height), on GOMAXPROCS goroutines; each worker makes its own
+// function (and scratch) once.
+func parallelRows(height int, newWorker func() func(row int)) {
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
+		fn := newWorker()
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				r := int(next.Add(1) - 1)
+				if r >= height {
+					return
+				}
+				fn(r)
+			}
+		}()
+	}
+	wg.Wait()
 }

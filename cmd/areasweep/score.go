@@ -122,10 +122,9 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	set.ThresholdTrain = append([]float64{}, mp.train...)
 	// Presence values per extent: only points inside the extent count.
 	presence := func(k int, role string) []float64 {
-		bit := uint64(1) << uint(k)
 		var out []float64
 		for j, p := range s.points {
-			if p.Status == "scored" && p.Role == role && valid[j] && fam.Mask[s.cell[j]]&bit != 0 {
+			if p.Status == "scored" && p.Role == role && valid[j] && fam.Has(k, s.cell[j]) {
 				out = append(out, vals[j])
 			}
 		}
@@ -309,9 +308,8 @@ func (s *session) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 		Values: base64.StdEncoding.EncodeToString(vals)}
 	for k := range fam.Members {
 		bits := make([]byte, (len(pv.Values)+7)/8)
-		bit := uint64(1) << uint(k)
 		for i := range pv.Values {
-			if fam.Mask[pv.SourceCell(g, i)]&bit != 0 {
+			if fam.Has(k, pv.SourceCell(g, i)) {
 				bits[i/8] |= 1 << uint(i%8)
 			}
 		}

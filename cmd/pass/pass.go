@@ -3,9 +3,9 @@ package pass
 import (
 	"fmt"
 	"math"
-	"math/bits"
 	"runtime"
 	"sync"
+	"sync/atomic"
 
 	"github.com/airbusgeo/godal"
 
@@ -28,7 +28,42 @@ type Raster struct {
 	// scale and offset turn stored values into model values
 	// (value = stored*scale + offset), as the band declares.
 	scale, offset float64
+	// width, height and the block size lay out the pass's blocks.
+	width, height, blockW, blockH int
+	// open gives each worker of a pass its own Source.
+	open func() (Source, error)
 }
+
+// Source fills blocks of stored values for one worker of a pass. A GDAL
+// band is one (each worker opens its own dataset handle); a value field
+// computed on the fly can be another.
+type Source interface {
+	// ReadBlock fills buf[:w*h], row by row, with the stored values of
+	// the w x h cells whose top-left cell is column x0, row y0.
+	ReadBlock(x0, y0, w, h int, buf []float64) error
+	// Close releases the source.
+	Close() error
+}
+
+// gdalSource reads band 1 of its own handle on a raster file.
+type gdalSource struct {
+	ds   *godal.Dataset
+	band godal.Band
+}
+
+func openGDALSource(path string) (Source, error) {
+	ds, err := godal.Open(path, godal.RasterOnly())
+	if err != nil {
+		return nil, fmt.Errorf("pass: reopen %s: %w", path, err)
+	}
+	return &gdalSource{ds: ds, band: ds.Bands()[0]}, nil
+}
+
+func (s *gdalSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
+	return s.band.Read(x0, y0, buf[:w*h], w, h)
+}
+
+func (s *gdalSource) Close() error { return s.ds.Close() }
 
 // Open opens the first band of the raster at path.
 func Open(path string) (*Raster, error) {
@@ -49,6 +84,8 @@ func Open(path string) (*Raster, error) {
 	if r.scale == 0 {
 		r.scale = 1
 	}
+	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
+	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
 }
 
@@ -133,9 +170,8 @@ func (r *Raster) each(out chan<- block, free chan []float64) error {
 
 // Blocks returns the number of blocks of the raster, for progress.
 func (r *Raster) Blocks() int {
-	st := r.band.Structure()
-	nx := (st.SizeX + st.BlockSizeX - 1) / st.BlockSizeX
-	ny := (st.SizeY + st.BlockSizeY - 1) / st.BlockSizeY
+	nx := (r.width + r.blockW - 1) / r.blockW
+	ny := (r.height + r.blockH - 1) / r.blockH
 	return nx * ny
 }
 
@@ -255,25 +291,33 @@ type Options struct {
 }
 
 // Score streams the raster once and returns one accumulator per family
-// member (nil for members with no bit) and the pass statistics.
+// member (empty for members that are not ok) and the pass statistics.
+//
+// Each worker opens its own Source (one dataset handle each), takes the
+// next block index, reads, decodes and scores it. Within a block, every
+// cell is located in the layout once; then, for each nested sequence of
+// members (Family.Groups), the cell is added only to the smallest member
+// of the sequence that holds it, and after the pass the accumulators are
+// merged up each sequence. Every sum is an integer, so the result is the
+// same for any number of workers and any block order.
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	n := len(fam.Members)
-	st := r.band.Structure()
-	blocks := make(chan block, workers)
-	free := make(chan []float64, 2*workers)
-	for i := 0; i < 2*workers; i++ {
-		free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
-	}
+	groups := fam.Groups()
+	nx := (r.width + r.blockW - 1) / r.blockW
+	total := r.Blocks()
 	type partial struct {
 		accs  []*metrics.Accumulator
 		stats Stats
+		err   error
 	}
 	parts := make([]partial, workers)
 	doneBlocks := make(chan struct{}, workers)
+	var next atomic.Int64
+	var failed atomic.Bool
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
 		accs := make([]*metrics.Accumulator, n)
@@ -284,31 +328,48 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		wg.Add(1)
 		go func(p *partial) {
 			defer wg.Done()
-			areas := make([]float64, g.Width)
-			weights := make([]int64, g.Width)
+			src, err := r.open()
+			if err != nil {
+				p.err = err
+				failed.Store(true)
+				return
+			}
+			defer src.Close()
+			ws := newWorkerState(r.blockW, r.blockH)
 			// Statistics stay local until the end: workers' partials sit
 			// side by side in memory and per-cell writes would share cache lines.
 			var st Stats
-			for b := range blocks {
-				r.scoreBlock(g, fam, layout, b, p.accs, &st, areas, weights, opt.Preview, opt.Valid)
-				free <- b.buf
+			for !failed.Load() {
+				i := int(next.Add(1) - 1)
+				if i >= total {
+					break
+				}
+				x0, y0 := (i%nx)*r.blockW, (i/nx)*r.blockH
+				b := block{x0: x0, y0: y0, w: min(r.blockW, r.width-x0), h: min(r.blockH, r.height-y0)}
+				b.buf = ws.buf[:b.w*b.h]
+				if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
+					p.err = fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.x0, b.y0, err)
+					failed.Store(true)
+					break
+				}
+				r.scoreBlock(g, fam, groups, layout, b, p.accs, &st, ws, opt.Preview, opt.Valid)
 				doneBlocks <- struct{}{}
 			}
 			p.stats = st
 		}(&parts[w])
 	}
-	errc := make(chan error, 1)
-	go func() { errc <- r.each(blocks, free) }()
 	go func() { wg.Wait(); close(doneBlocks) }()
-	done, total := 0, r.Blocks()
+	done := 0
 	for range doneBlocks {
 		done++
 		if opt.Progress != nil {
 			opt.Progress(done, total)
 		}
 	}
-	if err := <-errc; err != nil {
-		return nil, Stats{}, err
+	for w := range parts {
+		if parts[w].err != nil {
+			return nil, Stats{}, parts[w].err
+		}
 	}
 	out := parts[0].accs
 	stats := parts[0].stats
@@ -320,37 +381,79 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		}
 		stats.merge(parts[w].stats)
 	}
+	// Each member so far holds only the cells where it is the smallest of
+	// its sequence; merging up the sequence gives it all of its cells.
+	for _, seq := range groups {
+		for j := 1; j < len(seq); j++ {
+			if err := out[seq[j]].Merge(out[seq[j-1]]); err != nil {
+				return nil, Stats{}, fmt.Errorf("pass: internal: %w", err)
+			}
+		}
+	}
 	return out, stats, nil
 }
 
-// scoreBlock adds every valid cell of b to the accumulators of its extents.
-func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview, valid extent.Valid) {
+// workerState is one worker's scratch for scoring blocks.
+type workerState struct {
+	buf     []float64
+	areas   []float64
+	weights []int64
+	bins    []int32 // per column of the block row: layout bin, -1 when not scored
+	hists   []int32
+	in      []bool // per column: in some member
+	span    extent.SpanScratch
+}
+
+func newWorkerState(bw, bh int) *workerState {
+	return &workerState{buf: make([]float64, bw*bh), weights: make([]int64, bw),
+		bins: make([]int32, bw), hists: make([]int32, bw), in: make([]bool, bw)}
+}
+
+// scoreBlock adds every valid cell of b to the accumulators of the
+// smallest member of each group holding it.
+func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, pv *Preview, valid extent.Valid) {
 	r.decode(b.buf)
+	x1 := b.x0 + b.w
+	weights, bins, hists, in := ws.weights[:b.w], ws.bins[:b.w], ws.hists[:b.w], ws.in[:b.w]
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
-		areas = g.RowAreasRange(row, b.x0, b.x0+b.w, areas)
+		base := row*g.Width + b.x0
+		vals := b.buf[y*b.w : (y+1)*b.w]
+		if pv != nil {
+			if prow := pv.srcRow[row]; prow >= 0 {
+				for x, v := range vals {
+					if pc := pv.srcCol[b.x0+x]; pc >= 0 && r.valid(v) {
+						pv.Values[prow*pv.Width+pc] = v
+					}
+				}
+			}
+		}
+		// Cells in some member: the union of each group's largest member.
+		clear(in)
+		covered := false
+		for _, seq := range groups {
+			runs := fam.Span(seq[len(seq)-1], -1, row, b.x0, x1, &ws.span)
+			for i := 0; i < len(runs); i += 2 {
+				for x := int(runs[i]) - b.x0; x < int(runs[i+1])-b.x0; x++ {
+					in[x] = true
+				}
+				covered = true
+			}
+		}
+		if !covered {
+			continue
+		}
+		ws.areas = g.RowAreasRange(row, b.x0, x1, ws.areas)
 		lastA, lastW := -1.0, int64(0)
-		for x, a := range areas {
+		for x, a := range ws.areas {
 			if a != lastA { // constant along rows of most grids
 				lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
 			}
 			weights[x] = lastW
 		}
-		base := row*g.Width + b.x0
-		vals := b.buf[y*b.w : (y+1)*b.w]
-		mask := fam.Mask[base : base+b.w]
-		prow := -1
-		if pv != nil {
-			prow = pv.srcRow[row]
-		}
 		for x, v := range vals {
-			if prow >= 0 {
-				if pc := pv.srcCol[b.x0+x]; pc >= 0 && r.valid(v) {
-					pv.Values[prow*pv.Width+pc] = v
-				}
-			}
-			m := mask[x]
-			if m == 0 || !r.valid(v) {
+			bins[x] = -1
+			if !in[x] || !r.valid(v) {
 				continue
 			}
 			if valid != nil {
@@ -371,10 +474,21 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.
 			}
 			st.Area += w
 			bin, hist := layout.Locate(v)
-			for m != 0 {
-				k := bits.TrailingZeros64(m)
-				m &= m - 1
-				accs[k].AddLocated(bin, hist, v, w)
+			bins[x], hists[x] = int32(bin), int32(hist)
+		}
+		for _, seq := range groups {
+			inner := -1
+			for _, k := range seq {
+				runs := fam.Span(k, inner, row, b.x0, x1, &ws.span)
+				acc := accs[k]
+				for i := 0; i < len(runs); i += 2 {
+					for x := int(runs[i]) - b.x0; x < int(runs[i+1])-b.x0; x++ {
+						if bin := bins[x]; bin >= 0 {
+							acc.AddLocated(int(bin), int(hists[x]), vals[x], weights[x])
+						}
+					}
+				}
+				inner = k
 			}
 		}
 	}

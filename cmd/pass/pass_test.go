@@ -63,18 +63,11 @@ func openTestRaster(tb testing.TB, w, h int) (*extent.Grid, *Raster) {
 
 // fullFamily makes a family of n members each holding every valid cell.
 func fullFamily(g *extent.Grid, n int) *extent.Family {
-	f := &extent.Family{Grid: g, Mask: make([]uint64, g.Cells())}
-	m := uint64(1)<<uint(n) - 1
-	if n == 64 {
-		m = ^uint64(0)
-	}
-	for i := range f.Mask {
-		f.Mask[i] = m
-	}
+	var members []extent.Member
 	for k := 0; k < n; k++ {
-		f.Members = append(f.Members, extent.Member{ID: fmt.Sprint(k), Status: extent.StatusOK})
+		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: extent.StatusOK})
 	}
-	return f
+	return extent.NewFamilyFromRuns(g, members, func(k, row int) []int32 { return []int32{0, int32(g.Width)} })
 }
 
 // TestScoreWorkersAgree: the pass gives identical accumulators (and so

@@ -1,0 +1,224 @@
+package extent
+
+import (
+	"math/bits"
+	"slices"
+)
+
+// rowRuns is the cells of one member in one grid row: sorted, disjoint,
+// non-adjacent half-open column runs [c0,c1), stored as pairs
+// c0, c1, c0, c1, ... This canonical form makes two equal cell sets equal
+// slices, so duplicate and nesting checks compare runs, never cells.
+type rowRuns []int32
+
+// cellRuns is one member's cells, row by row. Memory follows the length of
+// the member's boundary (two int32 per run), not its area or the raster's
+// size.
+type cellRuns struct {
+	rows []rowRuns
+}
+
+func newCellRuns(height int) cellRuns { return cellRuns{rows: make([]rowRuns, height)} }
+
+// has reports whether column c is in r (binary search over runs).
+func (r rowRuns) has(c int) bool {
+	n := len(r) / 2
+	// First run whose end is beyond c.
+	lo, hi := 0, n
+	for lo < hi {
+		m := (lo + hi) / 2
+		if int(r[2*m+1]) <= c {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo < n && int(r[2*lo]) <= c
+}
+
+// cells returns the number of cells of r.
+func (r rowRuns) cells() int64 {
+	var n int64
+	for i := 0; i < len(r); i += 2 {
+		n += int64(r[i+1] - r[i])
+	}
+	return n
+}
+
+// appendRun appends [c0,c1) to dst, merging with the last run when they
+// touch or overlap; runs must come in ascending order of c0.
+func appendRun(dst rowRuns, c0, c1 int32) rowRuns {
+	if c1 <= c0 {
+		return dst
+	}
+	if n := len(dst); n > 0 && c0 <= dst[n-1] {
+		if c1 > dst[n-1] {
+			dst[n-1] = c1
+		}
+		return dst
+	}
+	return append(dst, c0, c1)
+}
+
+// canonical drops empty runs of r, sorts the others and merges
+// overlapping or touching ones, in place.
+func canonical(r rowRuns) rowRuns {
+	r = dropEmpty(r)
+	n := len(r) / 2
+	sorted := true
+	for i := 1; i < n; i++ {
+		if r[2*i] <= r[2*i-1] {
+			sorted = false
+			break
+		}
+	}
+	if sorted {
+		return r
+	}
+	pairs := make([][2]int32, n)
+	for i := range pairs {
+		pairs[i] = [2]int32{r[2*i], r[2*i+1]}
+	}
+	slices.SortFunc(pairs, func(a, b [2]int32) int { return int(a[0]) - int(b[0]) })
+	out := r[:0]
+	for _, p := range pairs {
+		out = appendRun(out, p[0], p[1])
+	}
+	return out
+}
+
+// union appends a | b to dst.
+func union(dst, a, b rowRuns) rowRuns {
+	i, j := 0, 0
+	for i < len(a) || j < len(b) {
+		if j >= len(b) || i < len(a) && a[i] <= b[j] {
+			dst = appendRun(dst, a[i], a[i+1])
+			i += 2
+		} else {
+			dst = appendRun(dst, b[j], b[j+1])
+			j += 2
+		}
+	}
+	return dst
+}
+
+// intersect appends a & b to dst.
+func intersect(dst, a, b rowRuns) rowRuns {
+	i, j := 0, 0
+	for i < len(a) && j < len(b) {
+		lo, hi := max(a[i], b[j]), min(a[i+1], b[j+1])
+		if lo < hi {
+			dst = append(dst, lo, hi)
+		}
+		if a[i+1] < b[j+1] {
+			i += 2
+		} else {
+			j += 2
+		}
+	}
+	return dst
+}
+
+// minus appends a &^ b to dst.
+func minus(dst, a, b rowRuns) rowRuns {
+	j := 0
+	for i := 0; i < len(a); i += 2 {
+		c0, c1 := a[i], a[i+1]
+		for j < len(b) && b[j+1] <= c0 {
+			j += 2
+		}
+		for k := j; k < len(b) && b[k] < c1; k += 2 {
+			if b[k] > c0 {
+				dst = append(dst, c0, b[k])
+			}
+			c0 = max(c0, b[k+1])
+		}
+		if c0 < c1 {
+			dst = append(dst, c0, c1)
+		}
+	}
+	return dst
+}
+
+// subset reports whether every cell of a is in b.
+func subset(a, b rowRuns) bool {
+	j := 0
+	for i := 0; i < len(a); i += 2 {
+		for j < len(b) && b[j+1] <= a[i] {
+			j += 2
+		}
+		if j >= len(b) || b[j] > a[i] || b[j+1] < a[i+1] {
+			return false
+		}
+	}
+	return true
+}
+
+// clipValid appends the cells of r that are set in valid (cell index
+// base+c) to dst, scanning the bitset a word at a time.
+func clipValid(dst, r rowRuns, valid Valid, base int) rowRuns {
+	for i := 0; i < len(r); i += 2 {
+		c, end := int(r[i]), int(r[i+1])
+		for c < end {
+			// Skip invalid cells.
+			idx := base + c
+			w := valid[idx>>6] >> (uint(idx) & 63)
+			if w == 0 {
+				c += 64 - idx&63
+				continue
+			}
+			if w&1 == 0 {
+				c += bits.TrailingZeros64(w)
+				continue
+			}
+			// A run of valid cells starts at c.
+			start := c
+			for c < end {
+				idx = base + c
+				w = ^valid[idx>>6] >> (uint(idx) & 63)
+				if w == 0 {
+					c += 64 - idx&63
+					continue
+				}
+				c += bits.TrailingZeros64(w)
+				break
+			}
+			dst = append(dst, int32(start), int32(min(c, end)))
+		}
+	}
+	return dst
+}
+
+// NewFamilyFromRuns makes a family on g from members (Status as given) and
+// their cells: runs(k, row) returns member k's cells in row as pairs c0, c1
+// of half-open column runs, in any order (they are sorted and merged). It
+// does no clipping, measuring or checking: tests and callers that hold
+// memberships computed elsewhere use it.
+func NewFamilyFromRuns(g *Grid, members []Member, runs func(k, row int) []int32) *Family {
+	f := &Family{Grid: g, Members: append([]Member(nil), members...), Chains: map[string][]int{}}
+	for k := range f.Members {
+		c := newCellRuns(g.Height)
+		for row := range c.rows {
+			r := append(rowRuns(nil), runs(k, row)...)
+			for i := 0; i < len(r); i += 2 {
+				r[i], r[i+1] = max(r[i], 0), min(r[i+1], int32(g.Width))
+				if r[i+1] <= r[i] {
+					r[i], r[i+1] = 0, 0
+				}
+			}
+			c.rows[row] = canonical(r)
+		}
+		f.cells = append(f.cells, c)
+	}
+	return f
+}
+
+func dropEmpty(r rowRuns) rowRuns {
+	out := r[:0]
+	for i := 0; i < len(r); i += 2 {
+		if r[i+1] > r[i] {
+			out = append(out, r[i], r[i+1])
+		}
+	}
+	return out
+}

@@ -1,0 +1,144 @@
+package extent
+
+import (
+	"fmt"
+	"math/rand/v2"
+	"slices"
+	"testing"
+)
+
+// cellsOf expands runs into a per-column membership of a row of width w.
+func cellsOf(r []int32, w int) []bool {
+	out := make([]bool, w)
+	for i := 0; i < len(r); i += 2 {
+		for c := r[i]; c < r[i+1]; c++ {
+			out[c] = true
+		}
+	}
+	return out
+}
+
+// runsOf is the canonical runs of a per-column membership, built cell by
+// cell (independently of appendRun).
+func runsOf(in []bool) rowRuns {
+	var r rowRuns
+	for c := 0; c < len(in); c++ {
+		if in[c] && (c == 0 || !in[c-1]) {
+			r = append(r, int32(c))
+		}
+		if in[c] && (c == len(in)-1 || !in[c+1]) {
+			r = append(r, int32(c+1))
+		}
+	}
+	return r
+}
+
+// randomRuns returns unsorted, possibly overlapping and touching runs in
+// a row of width w, and their union cell by cell.
+func randomRuns(rng *rand.Rand, w int) ([]int32, []bool) {
+	var r []int32
+	in := make([]bool, w)
+	for n := rng.IntN(6); n > 0; n-- {
+		c0 := rng.IntN(w)
+		c1 := c0 + rng.IntN(w-c0+1)
+		r = append(r, int32(c0), int32(c1))
+		for c := c0; c < c1; c++ {
+			in[c] = true
+		}
+	}
+	return r, in
+}
+
+// TestRunOps checks canonical, union, intersect, minus, subset, has,
+// clipValid and Span against the same operations done cell by cell on
+// random rows (brute force, by construction).
+func TestRunOps(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	const w = 150
+	for trial := 0; trial < 2000; trial++ {
+		ra, ina := randomRuns(rng, w)
+		rb, inb := randomRuns(rng, w)
+		a := canonical(append(rowRuns(nil), ra...))
+		b := canonical(append(rowRuns(nil), rb...))
+		if !slices.Equal(a, runsOf(ina)) {
+			t.Fatalf("canonical(%v) = %v, want %v", ra, a, runsOf(ina))
+		}
+		and, or, sub := make([]bool, w), make([]bool, w), make([]bool, w)
+		sup := true
+		for c := 0; c < w; c++ {
+			and[c], or[c], sub[c] = ina[c] && inb[c], ina[c] || inb[c], ina[c] && !inb[c]
+			if ina[c] && !inb[c] {
+				sup = false
+			}
+			if a.has(c) != ina[c] {
+				t.Fatalf("%v has %d = %v", a, c, a.has(c))
+			}
+		}
+		for _, tc := range []struct {
+			name string
+			got  rowRuns
+			want []bool
+		}{
+			{"union", union(nil, a, b), or},
+			{"intersect", intersect(nil, a, b), and},
+			{"minus", minus(nil, a, b), sub},
+		} {
+			if !slices.Equal(tc.got, runsOf(tc.want)) {
+				t.Fatalf("%s(%v, %v) = %v, want %v", tc.name, a, b, tc.got, runsOf(tc.want))
+			}
+		}
+		if subset(a, b) != sup {
+			t.Fatalf("subset(%v, %v) = %v, want %v", a, b, subset(a, b), sup)
+		}
+		// clipValid with a bitset offset inside its words.
+		base := rng.IntN(200)
+		valid := NewValid(base + w)
+		want := make([]bool, w)
+		for c := 0; c < w; c++ {
+			if rng.IntN(3) > 0 || c > 70 && c < 140 {
+				valid.Set(base + c)
+				want[c] = ina[c]
+			}
+		}
+		if got := clipValid(nil, a, valid, base); !slices.Equal(got, runsOf(want)) {
+			t.Fatalf("clipValid(%v) = %v, want %v", a, got, runsOf(want))
+		}
+	}
+}
+
+// TestSpan: Family.Span returns a member's cells in a column window minus
+// an inner member's, checked cell by cell (brute force, by construction).
+func TestSpan(t *testing.T) {
+	g, err := NewGrid(97, 3, [6]float64{0, 1, 0, 3, 0, -1}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(3, 5))
+	var rows [2][3][]int32
+	var in [2][3][]bool
+	for k := 0; k < 2; k++ {
+		for r := 0; r < 3; r++ {
+			rows[k][r], in[k][r] = randomRuns(rng, g.Width)
+		}
+	}
+	f := NewFamilyFromRuns(g, []Member{{ID: "a"}, {ID: "b"}}, func(k, row int) []int32 { return rows[k][row] })
+	var s SpanScratch
+	for r := 0; r < 3; r++ {
+		for _, win := range [][2]int{{0, 97}, {10, 40}, {64, 97}, {5, 6}} {
+			for _, inner := range []int{-1, 1} {
+				t.Run(fmt.Sprintf("row%d/%d-%d/inner%d", r, win[0], win[1], inner), func(t *testing.T) {
+					got := cellsOf(f.Span(0, inner, r, win[0], win[1], &s), g.Width)
+					for c := 0; c < g.Width; c++ {
+						want := c >= win[0] && c < win[1] && in[0][r][c] && (inner < 0 || !in[1][r][c])
+						if got[c] != want {
+							t.Fatalf("column %d: %v, want %v", c, got[c], want)
+						}
+						if f.Has(0, r*g.Width+c) != in[0][r][c] {
+							t.Fatalf("Has column %d wrong", c)
+						}
+					}
+				})
+			}
+		}
+	}
+}
