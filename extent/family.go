@@ -373,7 +373,6 @@ func seamEdge(a, b orb.Point) bool {
 	return anti(a[0]) && anti(b[0]) || math.Abs(a[1]) == 90 && a[1] == b[1]
 }
 
-
 // pointBuffers adds, for each radius, the union of geodesic discs around pts.
 func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 	ds = sortedUnique(ds)

@@ -1,12 +1,12 @@
 package extent
 
 import (
-	"runtime"
-	"sync"
-	"sync/atomic"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
+	"sync"
+	"sync/atomic"
 
 	"areasweep/extent/geodesy"
 )
