@@ -5,35 +5,11 @@ import (
 	"os"
 
 	"github.com/airbusgeo/godal"
-	"github.com/paulmach/orb"
-	"github.com/paulmach/orb/encoding/wkb"
+		"github.com/paulmach/orb/encoding/wkb"
 )
 
 // LayerName is the name of the GeoPackage layer that holds the family.
 const LayerName = "extents"
-
-// memberRaster returns an in-memory Byte raster of the grid with 1 on the
-// cells of member k and 0 (no data) elsewhere.
-func (f *Family) memberRaster(k int) (*godal.Dataset, error) {
-	g := f.Grid
-	ds, err := godal.Create(godal.Memory, "", 1, godal.Byte, g.Width, g.Height)
-	if err != nil {
-		return nil, err
-	}
-	if err := ds.SetGeoTransform(g.GeoTransform); err != nil {
-		ds.Close()
-		return nil, err
-	}
-	if err := ds.SetSpatialRef(g.srs); err != nil {
-		ds.Close()
-		return nil, err
-	}
-	if err := f.fillMemberBand(ds.Bands()[0], k); err != nil {
-		ds.Close()
-		return nil, err
-	}
-	return ds, nil
-}
 
 func (f *Family) fillMemberBand(band godal.Band, k int) error {
 	g := f.Grid
@@ -51,56 +27,6 @@ func (f *Family) fillMemberBand(band godal.Band, k int) error {
 		}
 	}
 	return nil
-}
-
-// Outline returns member k as polygons in the grid CRS: the union of its
-// cells, traced along cell edges.
-func (f *Family) Outline(k int) (orb.MultiPolygon, error) {
-	ds, err := f.memberRaster(k)
-	if err != nil {
-		return nil, fmt.Errorf("extent: outline of %s: %w", f.Members[k].ID, err)
-	}
-	defer ds.Close()
-	band := ds.Bands()[0]
-	if err := band.SetNoData(0); err != nil {
-		return nil, err
-	}
-	vds, err := godal.CreateVector(godal.Memory, "")
-	if err != nil {
-		return nil, err
-	}
-	defer vds.Close()
-	layer, err := vds.CreateLayer("cells", f.Grid.srs, godal.GTPolygon)
-	if err != nil {
-		return nil, err
-	}
-	if err := band.Polygonize(layer); err != nil {
-		return nil, fmt.Errorf("extent: outline of %s: %w", f.Members[k].ID, err)
-	}
-	var mp orb.MultiPolygon
-	layer.ResetReading()
-	for {
-		ft := layer.NextFeature()
-		if ft == nil {
-			break
-		}
-		b, err := ft.Geometry().WKB()
-		ft.Close()
-		if err != nil {
-			return nil, err
-		}
-		gm, err := wkb.Unmarshal(b)
-		if err != nil {
-			return nil, err
-		}
-		switch v := gm.(type) {
-		case orb.Polygon:
-			mp = append(mp, v)
-		case orb.MultiPolygon:
-			mp = append(mp, v...)
-		}
-	}
-	return mp, nil
 }
 
 // WriteGeoPackage writes every member with Status "ok" as one multipolygon
@@ -132,16 +58,28 @@ func (f *Family) WriteGeoPackage(path string) error {
 		ds.Close()
 		return fmt.Errorf("extent: create layer in %s: %w", path, err)
 	}
+	// Outlines are traced from the members' runs, members in parallel, and
+	// written in family order.
+	outlines := make([][]byte, len(f.Members))
+	errs := make([]error, len(f.Members))
+	parallelRows(len(f.Members), func() func(k int) {
+		return func(k int) {
+			if f.Members[k].Status != StatusOK {
+				return
+			}
+			mp, err := f.Outline(k)
+			if err == nil {
+				outlines[k], err = wkb.Marshal(mp)
+			}
+			errs[k] = err
+		}
+	})
 	for k, m := range f.Members {
 		if m.Status != StatusOK {
 			continue
 		}
-		mp, err := f.Outline(k)
-		if err != nil {
-			ds.Close()
-			return err
-		}
-		b, err := wkb.Marshal(mp)
+		b, err := outlines[k], errs[k]
+		outlines[k] = nil
 		if err != nil {
 			ds.Close()
 			return err

@@ -99,13 +99,13 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if err != nil {
 		return badInput(err)
 	}
-	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
-	t0 = time.Now()
+	s.logf("%s: one pass over %d blocks in %.2f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
 	if opt.Valid != nil {
-		if err := s.clip(opt.Valid); err != nil {
+		if err := s.timed("family clipped to the valid cells", func() error { return s.clip(opt.Valid) }); err != nil {
 			return err
 		}
 	}
+	t0 = time.Now()
 	floor := 0.0
 	if stats.Area > 0 {
 		floor = float64(stats.FloorArea) / float64(stats.Area)
@@ -182,7 +182,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		s.res.Scores = append(s.res.Scores, sc)
 		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
-	s.logf("%s: scores on %d extents (bootstrap included) in %.1f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: scores on %d extents (bootstrap included) in %.2f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, accs, presence); err != nil {
 		return err
 	}

@@ -86,6 +86,7 @@ func sweep(o *RunOptions) error {
 	}
 	s.stage = stage
 	ok := false
+	start := time.Now()
 	defer func() {
 		if !ok {
 			os.RemoveAll(stage)
@@ -114,28 +115,31 @@ func sweep(o *RunOptions) error {
 		if err := s.writeFamily(); err != nil {
 			return err
 		}
-		if err := s.finishResults(); err != nil {
+		if err := s.timed("analysis", s.finishResults); err != nil {
 			return err
 		}
-		data, err := s.res.Encode()
-		if err != nil {
-			return err
-		}
-		if err := writeAtomic(filepath.Join(stage, "results.json"), data); err != nil {
-			return err
-		}
-		if err := writeAtomic(filepath.Join(stage, "scores.csv"), scoresCSV(s.res)); err != nil {
-			return err
-		}
-		if err := writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res); err != nil {
+		if err := s.timed("results.json, scores.csv and omitted_points.gpkg written", func() error {
+			data, err := s.res.Encode()
+			if err != nil {
+				return err
+			}
+			if err := writeAtomic(filepath.Join(stage, "results.json"), data); err != nil {
+				return err
+			}
+			if err := writeAtomic(filepath.Join(stage, "scores.csv"), scoresCSV(s.res)); err != nil {
+				return err
+			}
+			return writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res)
+		}); err != nil {
 			return err
 		}
 		t0 := time.Now()
 		if err := report.Write(stage, s.res); err != nil {
 			return err
 		}
-		s.logf("report written in %.1f s", time.Since(t0).Seconds())
+		s.logf("report written in %.2f s", time.Since(t0).Seconds())
 	}
+	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(start).Seconds())
 	if err := writeAtomic(filepath.Join(stage, "run.log"), []byte(s.log.String())); err != nil {
 		return err
 	}
@@ -159,7 +163,9 @@ func sweep(o *RunOptions) error {
 // writeFamily exports the (clipped) family: extents.gpkg and, when asked,
 // extents.tif.
 func (s *session) writeFamily() error {
-	if err := s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg")); err != nil {
+	if err := s.timed("extents.gpkg written", func() error {
+		return s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg"))
+	}); err != nil {
 		return err
 	}
 	if s.o.MembershipTIFF {
@@ -216,7 +222,7 @@ func (s *session) readInputs() error {
 	if err := s.readPoints(); err != nil {
 		return err
 	}
-	return s.checksums()
+	return s.timed("input checksums (SHA-256)", s.checksums)
 }
 
 func mustExist(what, path string) error {
@@ -491,7 +497,7 @@ func (s *session) buildFamily() error {
 	s.logf("building the extent family")
 	t0 := time.Now()
 	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
-	s.logf("extent family: %d members built in %.1f s", len(fam.Members), time.Since(t0).Seconds())
+	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
 	if err != nil {
 		// Every failure here comes from the region, point or polygon inputs
 		// or from settings asking for too many extents.

@@ -1,0 +1,270 @@
+package extent
+
+import (
+	"sort"
+
+	"github.com/paulmach/orb"
+)
+
+// Outlines are traced from a member's row runs: no raster of the member
+// is made. The boundary between cells inside and outside is a set of
+// directed unit-grid edges with the inside on their left:
+//
+//   - the west side of each run, walked south; the east side, walked north;
+//   - on the grid line above row r, the columns inside in r but not in r-1
+//     (walked west), and the columns inside in r-1 but not in r (walked
+//     east).
+//
+// Edges are linked into rings; at a vertex where two inside cells touch
+// only diagonally the ring turns left, so diagonal neighbours are not
+// joined (4-connectivity, as polygonising a raster does by default).
+// Rings with the inside on the left and positive turning are outer rings;
+// the others are holes. Each ring is given to the connected group of runs
+// (4-connected) holding the cell on its left, and each group becomes one
+// polygon: its outer ring and its holes.
+
+// gridEdge is a directed edge between grid vertices (x, y) in cell units,
+// x east and y south from the grid's top-left corner.
+type gridEdge struct {
+	x0, y0, x1, y1 int32
+}
+
+func vertexKey(x, y int32) uint64 { return uint64(uint32(y))<<32 | uint64(uint32(x)) }
+
+// traceOutline returns member k's cells as polygons in cell units (x east,
+// y south from the top-left corner), one per 4-connected group of cells,
+// ordered by the group's first cell in row-major order.
+func (f *Family) traceOutline(k int) [][][][2]int32 {
+	rows := f.cells[k].rows
+	// Runs are numbered in row-major order; first[r] is the number of the
+	// first run of row r.
+	first := make([]int, len(rows)+1)
+	for r, rr := range rows {
+		first[r+1] = first[r] + len(rr)/2
+	}
+	nRuns := first[len(rows)]
+	if nRuns == 0 {
+		return nil
+	}
+	// Groups of runs connected across rows (union-find).
+	parent := make([]int32, nRuns)
+	for i := range parent {
+		parent[i] = int32(i)
+	}
+	var find func(i int32) int32
+	find = func(i int32) int32 {
+		for parent[i] != i {
+			parent[i] = parent[parent[i]]
+			i = parent[i]
+		}
+		return i
+	}
+	for r := 1; r < len(rows); r++ {
+		a, b := rows[r-1], rows[r]
+		i, j := 0, 0
+		for i < len(a) && j < len(b) {
+			if max(a[i], b[j]) < min(a[i+1], b[j+1]) {
+				x, y := find(int32(first[r-1]+i/2)), find(int32(first[r]+j/2))
+				if x != y {
+					parent[max(x, y)] = min(x, y)
+				}
+			}
+			if a[i+1] < b[j+1] {
+				i += 2
+			} else {
+				j += 2
+			}
+		}
+	}
+	// Edges, and the edges leaving each vertex.
+	var edges []gridEdge
+	var scratch rowRuns
+	for r := 0; r <= len(rows); r++ {
+		var above, below rowRuns
+		if r > 0 {
+			above = rows[r-1]
+		}
+		if r < len(rows) {
+			below = rows[r]
+		}
+		y := int32(r)
+		scratch = minus(scratch[:0], below, above)
+		for i := 0; i < len(scratch); i += 2 {
+			edges = append(edges, gridEdge{scratch[i+1], y, scratch[i], y})
+		}
+		scratch = minus(scratch[:0], above, below)
+		for i := 0; i < len(scratch); i += 2 {
+			edges = append(edges, gridEdge{scratch[i], y, scratch[i+1], y})
+		}
+		for i := 0; i < len(below); i += 2 {
+			edges = append(edges, gridEdge{below[i], y, below[i], y + 1}, gridEdge{below[i+1], y + 1, below[i+1], y})
+		}
+	}
+	out := make(map[uint64][2]int32, len(edges))
+	for i, e := range edges {
+		key := vertexKey(e.x0, e.y0)
+		o, ok := out[key]
+		if !ok {
+			o = [2]int32{int32(i), -1}
+		} else {
+			o[1] = int32(i)
+		}
+		out[key] = o
+	}
+	used := make([]bool, len(edges))
+	type ring struct {
+		pts   [][2]int32
+		group int32
+		outer bool
+	}
+	var rings []ring
+	sign := func(v int32) int32 {
+		switch {
+		case v > 0:
+			return 1
+		case v < 0:
+			return -1
+		}
+		return 0
+	}
+	// groupLeft names the group of the cell on the left of the unit step
+	// from (x, y) in direction (dx, dy).
+	groupLeft := func(x, y, dx, dy int32) int32 {
+		cx, cy := x, y // south: the cell to the east is (x, y)
+		switch {
+		case dy < 0: // north: cell to the west
+			cx, cy = x-1, y-1
+		case dx < 0: // west: cell to the south
+			cx = x - 1
+		case dx > 0: // east: cell to the north
+			cy = y - 1
+		}
+		rr := rows[cy]
+		ri := sort.Search(len(rr)/2, func(i int) bool { return rr[2*i+1] > cx })
+		return find(int32(first[cy] + ri))
+	}
+	for start := range edges {
+		if used[start] {
+			continue
+		}
+		// Corners of the ring, its first corner repeated at the end.
+		var pts [][2]int32
+		cur := start
+		dx, dy := int32(0), int32(0)
+		for {
+			used[cur] = true
+			e := edges[cur]
+			ndx, ndy := sign(e.x1-e.x0), sign(e.y1-e.y0)
+			if ndx != dx || ndy != dy {
+				pts = append(pts, [2]int32{e.x0, e.y0})
+			}
+			dx, dy = ndx, ndy
+			o := out[vertexKey(e.x1, e.y1)]
+			next := o[0]
+			if o[1] >= 0 {
+				// Two ways on: turn left, i.e. towards (dy, -dx).
+				n := edges[o[0]]
+				if sign(n.x1-n.x0) != dy || sign(n.y1-n.y0) != -dx {
+					next = o[1]
+				}
+			}
+			if used[next] {
+				break
+			}
+			cur = int(next)
+		}
+		// The start is no corner when the last edge runs straight into it.
+		if f0 := edges[start]; len(pts) > 1 && sign(f0.x1-f0.x0) == dx && sign(f0.y1-f0.y0) == dy {
+			pts = pts[1:]
+		}
+		pts = append(pts, pts[0])
+		// A ring that passes a vertex twice (cells touching only at a
+		// corner) is split there into simple rings, as valid polygons
+		// need: an outer ring and a hole touching it at that point.
+		for _, loop := range splitLoops(pts) {
+			var area int64
+			for i := 1; i < len(loop); i++ {
+				area += int64(loop[i-1][0])*int64(loop[i][1]) - int64(loop[i][0])*int64(loop[i-1][1])
+			}
+			p0, p1 := loop[0], loop[1]
+			group := groupLeft(p0[0], p0[1], sign(p1[0]-p0[0]), sign(p1[1]-p0[1]))
+			// With x east and y south, the inside on the left makes outer
+			// rings turn clockwise on screen: a negative shoelace sum.
+			rings = append(rings, ring{pts: loop, group: group, outer: area < 0})
+		}
+	}
+	// One polygon per outer ring, in order of its group's first run, with
+	// the holes of its group.
+	byGroup := map[int32]int{}
+	var polys [][][][2]int32
+	var order []int32
+	for _, rg := range rings {
+		if rg.outer {
+			byGroup[rg.group] = len(polys)
+			polys = append(polys, [][][2]int32{rg.pts})
+			order = append(order, rg.group)
+		}
+	}
+	for _, rg := range rings {
+		if !rg.outer {
+			i := byGroup[rg.group]
+			polys[i] = append(polys[i], rg.pts)
+		}
+	}
+	// Sort polygons by group (the smallest run number of the group).
+	idx := make([]int, len(polys))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.Slice(idx, func(a, b int) bool { return order[idx[a]] < order[idx[b]] })
+	sorted := make([][][][2]int32, len(polys))
+	for i, j := range idx {
+		sorted[i] = polys[j]
+	}
+	return sorted
+}
+
+// Outline returns member k as polygons in the grid CRS: the union of its
+// cells, traced along cell edges from its row runs.
+func (f *Family) Outline(k int) (orb.MultiPolygon, error) {
+	gt := f.Grid.GeoTransform
+	var mp orb.MultiPolygon
+	for _, p := range f.traceOutline(k) {
+		var poly orb.Polygon
+		for _, r := range p {
+			ring := make(orb.Ring, len(r))
+			for i, v := range r {
+				x, y := float64(v[0]), float64(v[1])
+				ring[i] = orb.Point{gt[0] + x*gt[1] + y*gt[2], gt[3] + x*gt[4] + y*gt[5]}
+			}
+			poly = append(poly, ring)
+		}
+		mp = append(mp, poly)
+	}
+	return mp, nil
+}
+
+// splitLoops splits a closed vertex list (first vertex repeated last) at
+// every vertex it passes twice, returning closed simple loops.
+func splitLoops(pts [][2]int32) [][][2]int32 {
+	var loops [][][2]int32
+	var stack [][2]int32
+	at := map[[2]int32]int{}
+	for _, p := range pts {
+		if i, ok := at[p]; ok {
+			loop := append([][2]int32{}, stack[i:]...)
+			loop = append(loop, p)
+			if len(loop) > 3 {
+				loops = append(loops, loop)
+			}
+			for _, q := range stack[i+1:] {
+				delete(at, q)
+			}
+			stack = stack[:i+1]
+			continue
+		}
+		at[p] = len(stack)
+		stack = append(stack, p)
+	}
+	return loops
+}
