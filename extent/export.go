@@ -5,7 +5,7 @@ import (
 	"os"
 
 	"github.com/airbusgeo/godal"
-		"github.com/paulmach/orb/encoding/wkb"
+	"github.com/paulmach/orb/encoding/wkb"
 )
 
 // LayerName is the name of the GeoPackage layer that holds the family.
