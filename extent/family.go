@@ -436,13 +436,7 @@ const tileSide = 16
 // The cost so stays near the buffers' edges instead of over their area.
 func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
 	g := b.g
-	gap := func(d float64) float64 {
-		m := math.Inf(1)
-		for _, c := range cuts {
-			m = math.Min(m, math.Abs(d-c))
-		}
-		return m
-	}
+	gap := func(lo, hi float64) float64 { return intervalGap(cuts, lo, hi) }
 	bands := make(chan int)
 	var wg sync.WaitGroup
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
@@ -541,10 +535,30 @@ func cutRuns(dist []float64, cuts []float64, open []int32) []rowRuns {
 	return near
 }
 
+// intervalGap is how far the interval [lo, hi] lies from the nearest cut:
+// min over cuts c of lo - c (c < lo) or c - hi (c >= hi), and 0 when a cut
+// lies in [lo, hi). For lo = hi = d it is min |d - c|. A distance within
+// the gap of the interval is in the same class as every point of it.
+func intervalGap(cuts []float64, lo, hi float64) float64 {
+	// cuts are ascending: the first at or above lo, and the one before it.
+	i := sort.SearchFloat64s(cuts, lo)
+	m := math.Inf(1)
+	if i < len(cuts) {
+		if cuts[i] < hi {
+			return 0
+		}
+		m = cuts[i] - hi
+	}
+	if i > 0 {
+		m = math.Min(m, lo-cuts[i-1])
+	}
+	return m
+}
+
 // wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
 // one query when it can, and reports whether it did. lons and lats hold
 // the rows of the band starting at row band.
-func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(float64) float64, set func(int, float64),
+func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
 	lons, lats [][]float64, band, r0, r1, c0, c1 int) bool {
 	g := b.g
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
@@ -567,9 +581,18 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(float64) f
 	// curvature lie between b^2/a and a^2/b); the factor covers that and
 	// the curvature of the tile's edges.
 	rho = rho*1.02 + 1
-	_, d := ix.Nearest(clat, clon, maxD+rho)
-	if !(d-rho > maxD) && !(gap(d) > rho) {
-		return false
+	// Bounds from the chord stage settle most tiles without a geodesic;
+	// any value in [lo, hi] is then in the class of every cell.
+	d := math.Inf(1)
+	if lo, hi := ix.NearestBounds(clat, clon, maxD+rho); !math.IsInf(hi, 1) && !(lo-rho > maxD) {
+		if gap(lo, hi) > rho {
+			d = lo
+		} else {
+			_, d = ix.Nearest(clat, clon, maxD+rho)
+			if !(d-rho > maxD) && !(gap(d, d) > rho) {
+				return false
+			}
+		}
 	}
 	for r := r0; r < r1; r++ {
 		base := r * g.Width
@@ -593,19 +616,30 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 
 // walkRow classifies cells [c0,c1) of one row (cells base+c), querying
 // where needed and skipping ahead while the class cannot change.
-func walkRow(ix *geodesy.Index, reach reachBox, maxD float64, gap func(float64) float64, set func(int, float64),
+func walkRow(ix *geodesy.Index, reach reachBox, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
 	lons, lats []float64, rowStep float64, base, c0, c1 int) {
 	for c := c0; c < c1; c++ {
 		if math.IsNaN(lats[c]) || !reach.has(lons[c], lats[c]) {
 			set(base+c, math.Inf(1))
 			continue
 		}
-		_, d := ix.Nearest(lats[c], lons[c], maxD)
-		set(base+c, d)
-		if math.IsInf(d, 1) {
+		// Bounds first; the exact distance only when a cut lies between
+		// them. Any value in [lo, hi] is then in the cell's class.
+		lo, hi := ix.NearestBounds(lats[c], lons[c], maxD)
+		if math.IsInf(hi, 1) {
+			set(base+c, hi)
 			continue
 		}
-		room := gap(d)
+		d, room := lo, gap(lo, hi)
+		if !(room > 0) {
+			_, d = ix.Nearest(lats[c], lons[c], maxD)
+			if math.IsInf(d, 1) {
+				set(base+c, d)
+				continue
+			}
+			room = gap(d, d)
+		}
+		set(base+c, d)
 		for c+1 < c1 && !math.IsNaN(lats[c+1]) {
 			if rowStep >= 0 {
 				room -= rowStep

@@ -447,3 +447,42 @@ func (ix *Index) consider(i int, st *query, buf *[]cand) {
 	}
 	*buf = append(*buf, cand{d2: d, slot: int32(i)})
 }
+
+// stretchMax bounds k = N cos(phi) / (R_r cos(mu)), the factor by which the
+// ellipsoid's east-west length element exceeds R_r times the unit sphere's
+// at the same point (k >= 1 is bound (1)'s stretch condition). k is largest
+// at the equator, a/R_r = 1.001679; TestStretchMax checks the bound on a
+// 0.001-degree grid.
+const stretchMax = 1.0017
+
+// NearestBounds returns bounds lo <= s <= hi on the geodesic distance s
+// (metres) from (lat, lon) to its nearest site, from the kd-tree's chord
+// stage alone (no geodesic computation). With sigma the angle of the
+// smallest rectifying chord, bound (1) gives s >= R_r sigma, and the curve
+// on the ellipsoid whose image is the great-circle arc of angle sigma has
+// length at most R_r k_max sigma, since
+//
+//	ds^2 = R_r^2 (dmu^2 + k^2 cos^2(mu) dlambda^2) <= (R_r k_max dsigma)^2,
+//
+// so s <= R_r k_max sigma (k_max = 1.0017). The interval is at most 0.17%
+// of s wide. When no site can lie within maxDist (> 0) it returns
+// (maxDist, +Inf): every site is farther. Invalid coordinates give
+// (NaN, NaN). Safe for concurrent use.
+func (ix *Index) NearestBounds(lat, lon, maxDist float64) (lo, hi float64) {
+	if !(math.Abs(lat) <= 90) || math.IsInf(lon, 0) || math.IsNaN(lon) {
+		return math.NaN(), math.NaN()
+	}
+	st := query{lat: lat, lon: lon, bestD2: 5, bestAt: -1, cap: math.Inf(1)}
+	st.q, st.p = siteVectors(lat, lon)
+	if maxDist > 0 && !math.IsInf(maxDist, 1) {
+		st.bestD2 = math.Nextafter(chordBound(withMargin(maxDist)), 5)
+	}
+	ix.nearestChord(0, len(ix.pts), &st)
+	if st.bestAt < 0 {
+		return maxDist, math.Inf(1)
+	}
+	sigma := 2 * math.Asin(math.Min(1, math.Sqrt(st.bestD2)/2))
+	lo = math.Max(0, sigma*rectBound*(1-1e-9)-marginAbs)
+	hi = withMargin(sigma*rectRadius*stretchMax*(1+1e-9)) + marginAbs
+	return lo, hi
+}

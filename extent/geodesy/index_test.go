@@ -347,3 +347,54 @@ func TestRectifying(t *testing.T) {
 		}
 	}
 }
+
+// TestStretchMax: k = N cos(phi) / (R_r cos(mu)) = a cos(beta) / (R_r
+// cos(mu)) stays at or below stretchMax on a 0.001-degree grid (k = a/R_r
+// at the equator; by the formulas in the Index comment), and
+// NearestBounds brackets the exact nearest distance from Nearest (itself
+// checked against brute-force Inverse in this file) for random queries
+// near and far from random sites, and reports (maxDist, +Inf) only when
+// Nearest finds no site within maxDist.
+func TestStretchMax(t *testing.T) {
+	for k := 0; k < 90000; k++ {
+		phi := float64(k) / 1000 * math.Pi / 180
+		beta := math.Atan2((1-Flattening)*math.Sin(phi), math.Cos(phi))
+		if kk := SemiMajor * math.Cos(beta) / (rectRadius * math.Cos(rectifying(phi))); kk > stretchMax {
+			t.Fatalf("k = %v > %v at %v deg", kk, stretchMax, float64(k)/1000)
+		}
+	}
+	rng := rand.New(rand.NewPCG(5, 9))
+	lats := make([]float64, 300)
+	lons := make([]float64, 300)
+	for i := range lats {
+		lats[i] = -60 + 120*rng.Float64()
+		lons[i] = -30 + 60*rng.Float64()
+	}
+	ix, err := NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for q := 0; q < 3000; q++ {
+		lat, lon := -89+178*rng.Float64(), -180+360*rng.Float64()
+		maxD := []float64{0, 5e5, 3e6}[q%3]
+		_, s := ix.Nearest(lat, lon, maxD)
+		lo, hi := ix.NearestBounds(lat, lon, maxD)
+		if math.IsInf(hi, 1) {
+			if !math.IsInf(s, 1) || lo != maxD {
+				t.Fatalf("(%v, %v) maxD %v: bounds (%v, +Inf) but Nearest gives %v", lat, lon, maxD, lo, s)
+			}
+			continue
+		}
+		if math.IsInf(s, 1) {
+			// No site within maxD: the chord stage may still not exclude
+			// all of them, and then the bounds say nothing more.
+			continue
+		}
+		if s < lo || s > hi {
+			t.Fatalf("(%v, %v): %v outside [%v, %v]", lat, lon, s, lo, hi)
+		}
+		if hi-lo > 0.0018*s+1e-3 {
+			t.Errorf("(%v, %v): interval %v wide at %v m", lat, lon, hi-lo, s)
+		}
+	}
+}
