@@ -1,10 +1,13 @@
 // Package pass reads model rasters block by block and feeds every valid
-// cell to the accumulators of every extent holding it: the one streaming
-// scoring pass of a run. Blocks are read in the raster's natural block size
-// by one reader and scored by parallel workers, each with its own
-// accumulators, merged at the end. Accumulators hold integer sums, so the
-// merged result does not depend on the number of workers or the order in
-// which blocks finish.
+// cell to the accumulators of the extents holding it: the one streaming
+// scoring pass of a run. Each of N workers opens its own Source (one GDAL
+// dataset handle per worker, so that decoding runs on every core), takes
+// the next block, reads, decodes and scores it with its own accumulators,
+// merged at the end. A cell is added once per nested sequence of extents
+// (extent.Family.Groups), to the smallest extent of the sequence holding
+// it, and the accumulators are merged outwards along each sequence after
+// the pass. Accumulators hold integer sums, so the result does not depend
+// on the number of workers or the order in which blocks finish.
 //
 // The first model's pass can also record the valid cells it meets
 // (Options.Valid), so that the extent family is clipped without a separate
