@@ -125,6 +125,89 @@ func TestScoreWorkersAgree(t *testing.T) {
 	}
 }
 
+// nestedFamily makes n members on discs of growing radius around the
+// grid's centre (member k: cells within 20*(k+1) cells), chained smallest
+// first when chained is true, plus one band of rows as a member of its
+// own.
+func nestedFamily(g *extent.Grid, n int, chained bool) *extent.Family {
+	var members []extent.Member
+	for k := 0; k <= n; k++ {
+		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: extent.StatusOK})
+	}
+	cx, cy := float64(g.Width)/2, float64(g.Height)/2
+	f := extent.NewFamilyFromRuns(g, members, func(k, row int) []int32 {
+		if k == n {
+			if row%50 < 20 {
+				return []int32{int32(g.Width / 3), int32(g.Width)}
+			}
+			return nil
+		}
+		r := 20 * float64(k+1)
+		dy := float64(row) + 0.5 - cy
+		if math.Abs(dy) >= r {
+			return nil
+		}
+		dx := math.Sqrt(r*r - dy*dy)
+		return []int32{int32(math.Ceil(cx - dx)), int32(math.Ceil(cx + dx))}
+	})
+	if chained {
+		for k := 0; k < n; k++ {
+			f.Chains["discs"] = append(f.Chains["discs"], k)
+		}
+	}
+	return f
+}
+
+// TestScoreGroups: adding a cell only to the smallest member of a chain
+// and merging outwards gives the same accumulators as adding it to every
+// member (the same family without a chain), for 1 and 2 workers, and each
+// member counts exactly its valid cells (brute force over the cells; 1 in
+// 97 cells is no-data by construction).
+func TestScoreGroups(t *testing.T) {
+	g, r := openTestRaster(t, 300, 200)
+	defer r.Close()
+	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref []string
+	for _, tc := range []struct {
+		chained bool
+		workers int
+	}{{false, 1}, {true, 1}, {true, 2}} {
+		fam := nestedFamily(g, 4, tc.chained)
+		if got := len(fam.Groups()); tc.chained && got != 2 || !tc.chained && got != 5 {
+			t.Fatalf("chained=%v: %d groups", tc.chained, got)
+		}
+		accs, _, err := r.Score(g, fam, layout, Options{Workers: tc.workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got []string
+		for k, a := range accs {
+			want := int64(0)
+			for i := 0; i < g.Cells(); i++ {
+				if i%97 != 0 && fam.Has(k, i) {
+					want++
+				}
+			}
+			if a.Cells() != want {
+				t.Errorf("chained=%v workers=%d member %d: %d cells, want %d", tc.chained, tc.workers, k, a.Cells(), want)
+			}
+			sc, err := metrics.Score(a, []float64{0.7, 0.9}, []float64{0.5, 0.9, 0.2}, metrics.Settings{Iterations: 10, Seed: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got = append(got, fmt.Sprint(a.Area(), a.Min(), a.Max(), sc))
+		}
+		if ref == nil {
+			ref = got
+		} else if fmt.Sprint(got) != fmt.Sprint(ref) {
+			t.Errorf("chained=%v workers=%d: accumulators differ from adding every member", tc.chained, tc.workers)
+		}
+	}
+}
+
 // BenchmarkScorePass measures the whole streaming pass (GDAL block reads,
 // cell areas, locating each value and updating every extent) on a 2000 x
 // 2000 raster: cell-extent updates per second.
@@ -144,6 +227,22 @@ func BenchmarkScorePass(b *testing.B) {
 		fam := fullFamily(g, n)
 		for _, workers := range []int{1, 2} {
 			b.Run(fmt.Sprintf("extents=%d,workers=%d", n, workers), func(b *testing.B) {
+				b.ReportAllocs()
+				for i := 0; i < b.N; i++ {
+					if _, _, err := r.Score(g, fam, layout, Options{Workers: workers}); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(float64(w*h*n)*float64(b.N)/b.Elapsed().Seconds(), "updates/s")
+			})
+		}
+	}
+	// Nested discs in one chain: a cell costs one update per chain, so the
+	// time should hardly grow with the number of members.
+	for _, n := range []int{4, 16, 60} {
+		fam := nestedFamily(g, n, true)
+		for _, workers := range []int{2} {
+			b.Run(fmt.Sprintf("nested=%d,workers=%d", n, workers), func(b *testing.B) {
 				b.ReportAllocs()
 				for i := 0; i < b.N; i++ {
 					if _, _, err := r.Score(g, fam, layout, Options{Workers: workers}); err != nil {
