@@ -219,7 +219,7 @@ func (s *session) readInputs() error {
 	g := s.grid
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
-	if err := s.readPoints(); err != nil {
+	if err := s.timed("occurrences read, placed and sampled", s.readPoints); err != nil {
 		return err
 	}
 	return s.timed("input checksums (SHA-256)", s.checksums)

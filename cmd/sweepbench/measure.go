@@ -31,6 +31,7 @@ type row struct {
 	bare, run, baseline float64
 	runRSS              float64
 	members             int // extents in the family built (duplicates included)
+	phases              string
 }
 
 func (b *bench) runAll(dir string, cells, extents []float64) error {
@@ -61,6 +62,7 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 				}
 				if t < r.run {
 					r.run, r.runRSS = t, rss
+					r.phases = phases(filepath.Join(s.dir, "out", "run.log"))
 				}
 			}
 			if float64(r.cells) <= b.baselineMax {
@@ -74,6 +76,7 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 			cps := float64(r.cells) * float64(len(s.models)) / r.run
 			fmt.Printf("%-12d %-8s %-9.2f %-9.2f %-7.1f %-11.2f %-7.1f %-10.0f %-12.3g\n",
 				r.cells, extentsLabel(r), r.bare, r.run, r.run/r.bare, r.baseline, r.baseline/r.run, r.runRSS, cps)
+			fmt.Printf("  phases (run.log): %s\n", r.phases)
 		}
 	}
 	growth(rows)
@@ -300,4 +303,33 @@ func weightedAUC(vals []float32, mask []uint8, rw []float64, width int, tests []
 		n++
 	}
 	return sum / float64(n)
+}
+
+// phases returns the timed phases of a run's log (its "... in 1.23 s"
+// lines), in order, as "phase seconds" items.
+func phases(path string) string {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "(no run.log)"
+	}
+	short := strings.NewReplacer(" (bootstrap included)", "", "results.json, scores.csv and omitted_points.gpkg", "results files",
+		"family clipped to the valid cells", "clip", "input checksums (SHA-256)", "checksums", " (before moving the outputs into place)", "",
+		"extent family: ", "family ", " written", "", "occurrences read, placed and sampled", "points")
+	var out []string
+	for _, line := range strings.Split(string(data), "\n") {
+		i := strings.LastIndex(line, " in ")
+		if i < 0 {
+			continue
+		}
+		var sec float64
+		if _, err := fmt.Sscanf(line[i+4:], "%g s", &sec); err != nil {
+			continue
+		}
+		name := line[:i]
+		if j := strings.Index(name, ": one pass over"); j >= 0 {
+			name = name[:j] + " pass"
+		}
+		out = append(out, fmt.Sprintf("%s %.2f", short.Replace(name), sec))
+	}
+	return strings.Join(out, "; ")
 }
