@@ -252,10 +252,17 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		latsR := make([]float64, g.Width)
 		return func(row int) {
 			g.RowLonLat(row, lonsR, latsR)
+			inside := func(c int) bool {
+				return !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c])
+			}
 			var in rowRuns
-			for c := 0; c < g.Width; c++ {
-				if !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c]) {
-					in = appendRun(in, int32(c), int32(c+1))
+			if lat, ok := alongParallel(lonsR, latsR); ok {
+				in = h.rowRuns(lat, lonsR, box, inside)
+			} else {
+				for c := 0; c < g.Width; c++ {
+					if inside(c) {
+						in = appendRun(in, int32(c), int32(c+1))
+					}
 				}
 			}
 			j := 0
@@ -294,4 +301,99 @@ func parallelRows(height int, newWorker func() func(row int)) {
 		}()
 	}
 	wg.Wait()
+}
+
+// alongParallel reports whether a row's cell centres lie on one parallel
+// with longitudes strictly increasing (a latitude-longitude grid whose
+// coordinates reach WGS84 unchanged), and returns its latitude.
+func alongParallel(lons, lats []float64) (float64, bool) {
+	lat := lats[0]
+	if math.IsNaN(lat) {
+		return 0, false
+	}
+	for c := range lats {
+		if lats[c] != lat || c > 0 && !(lons[c] > lons[c-1]) {
+			return 0, false
+		}
+	}
+	return lat, true
+}
+
+// hullMargin is how many cells on each side of a computed boundary
+// crossing are tested exactly: the crossings are computed to far better
+// than a cell, and the test decides.
+const hullMargin = 2
+
+// rowRuns returns the runs of a row's cells inside the hull and the box,
+// where the row's centres lie on the parallel lat at increasing longitudes
+// lons and inside(c) is the exact test of cell c. Membership can change
+// along the parallel only where it crosses one of the great circles that
+// bound the hull (its edges, and the edge of the projection's hemisphere)
+// or a meridian bounding the box. Cells within hullMargin of a crossing
+// are tested one by one; each longer stretch between them is tested at its
+// first cell, which decides the whole stretch. The result is the same as
+// testing every cell.
+func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, inside func(c int) bool) rowRuns {
+	w := len(lons)
+	var at []float64
+	// Great circle with normal n meets the parallel where
+	// n0 cos(phi) cos(lambda) + n1 cos(phi) sin(lambda) = -n2 sin(phi).
+	circle := func(n [3]float64) {
+		phi := lat * math.Pi / 180
+		a, b, c := n[0]*math.Cos(phi), n[1]*math.Cos(phi), -n[2]*math.Sin(phi)
+		r := math.Hypot(a, b)
+		if r == 0 {
+			return
+		}
+		q := c / r
+		if math.Abs(q) > 1+1e-9 {
+			return
+		}
+		d := math.Acos(math.Max(-1, math.Min(1, q)))
+		l0 := math.Atan2(b, a)
+		at = append(at, (l0+d)*180/math.Pi, (l0-d)*180/math.Pi)
+	}
+	plane := func(x, y float64) [3]float64 {
+		g := s.proj
+		return [3]float64{g.c[0] + x*g.e1[0] + y*g.e2[0], g.c[1] + x*g.e1[1] + y*g.e2[1], g.c[2] + x*g.e1[2] + y*g.e2[2]}
+	}
+	for i := range s.poly {
+		a, b := s.poly[i], s.poly[(i+1)%len(s.poly)]
+		circle(cross(plane(a[0], a[1]), plane(b[0], b[1])))
+	}
+	circle(s.proj.c)
+	if box.lonH < 180 {
+		at = append(at, box.lonC-box.lonH, box.lonC+box.lonH)
+	}
+	// Mark the cells near each crossing, at every turn of 360 degrees
+	// from just below the row's first longitude to beyond its last.
+	exact := make([]bool, w)
+	for _, l := range at {
+		l = lons[0] - 360 + math.Mod(math.Mod(l-lons[0], 360)+360, 360)
+		for ; l <= lons[w-1]+360; l += 360 {
+			i := sort.SearchFloat64s(lons, l)
+			for c := max(0, i-hullMargin-1); c <= min(w-1, i+hullMargin); c++ {
+				exact[c] = true
+			}
+		}
+	}
+	var out rowRuns
+	for c := 0; c < w; {
+		if exact[c] {
+			if inside(c) {
+				out = appendRun(out, int32(c), int32(c+1))
+			}
+			c++
+			continue
+		}
+		end := c
+		for end < w && !exact[end] {
+			end++
+		}
+		if inside(c) {
+			out = appendRun(out, int32(c), int32(end))
+		}
+		c = end
+	}
+	return out
 }
