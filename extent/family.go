@@ -158,7 +158,9 @@ func (b *builder) fillRuns(k int, mp orb.MultiPolygon) {
 // Build makes the family on grid g, clipped to the valid cells (nil: every
 // cell). trainCells and testCells are the grid cell index of each point (or
 // -1 outside). A run that learns the valid cells only in its first scoring
-// pass builds with nil and calls Clip afterwards.
+// pass builds with nil and calls Clip afterwards; with nil, cells, points,
+// statuses and chains are found but areas (AreaKm2, Share) are left 0 for
+// Clip to measure.
 func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
 	f := &Family{Grid: g, Chains: map[string][]int{}}
 	b := &builder{g: g, valid: valid, f: f}
@@ -870,12 +872,17 @@ func (b *builder) finish(trainCells, testCells []int) {
 	cells := make([]int64, n)
 	area := make([]float64, n)
 	total := 0.0
+	// Without the valid cells the family is not yet clipped: Clip will
+	// measure it, so areas are not summed twice.
+	measure := b.valid != nil
 	var wg sync.WaitGroup
-	wg.Add(1)
-	go func() {
-		defer wg.Done()
-		total = b.validArea()
-	}()
+	if measure {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			total = b.validArea()
+		}()
+	}
 	var next atomic.Int64
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
 		wg.Add(1)
@@ -893,16 +900,28 @@ func (b *builder) finish(trainCells, testCells []int) {
 						r = clipValid(nil, r, b.valid, row*g.Width)
 						rows[row] = r
 					}
-					for i := 0; i < len(r); i += 2 {
-						c0, c1 := int(r[i]), int(r[i+1])
-						areas = g.RowAreasRange(row, c0, c1, areas)
-						a := area[k]
-						for _, x := range areas {
-							a += x
-						}
-						area[k] = a
-						cells[k] += int64(c1 - c0)
+					cells[k] += r.cells()
+					if !measure || len(r) == 0 {
+						continue
 					}
+					// One float64 sum per member, cell after cell in cell
+					// order; rows of equal cells repeat one value.
+					a := area[k]
+					if same, ok := g.rowArea(row); ok {
+						for i := 0; i < len(r); i += 2 {
+							for c := r[i]; c < r[i+1]; c++ {
+								a += same
+							}
+						}
+					} else {
+						for i := 0; i < len(r); i += 2 {
+							areas = g.RowAreasRange(row, int(r[i]), int(r[i+1]), areas)
+							for _, x := range areas {
+								a += x
+							}
+						}
+					}
+					area[k] = a
 				}
 			}
 		}()

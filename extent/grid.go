@@ -314,12 +314,11 @@ func (g *Grid) transform(t *godal.Transform, xs, ys []float64) {
 // RowLonLat fills lons and lats (length Width) with the WGS84 coordinates
 // of the centres of the cells of row.
 func (g *Grid) RowLonLat(row int, lons, lats []float64) {
-	xs := make([]float64, g.Width)
-	ys := make([]float64, g.Width)
+	// The centres are converted in place: no allocation per row.
 	for c := 0; c < g.Width; c++ {
-		xs[c], ys[c] = g.Centre(c, row)
+		lons[c], lats[c] = g.Centre(c, row)
 	}
-	g.ToLonLat(xs, ys, lons, lats)
+	g.ToLonLat(lons[:g.Width], lats[:g.Width], lons, lats)
 }
 
 // RowAreas fills dst (length Width) with the true area in km^2 of each
@@ -334,6 +333,17 @@ func (g *Grid) RowLonLat(row int, lons, lats []float64) {
 // (densified along the block edges) after transforming to WGS84.
 func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 	return g.RowAreasRange(row, 0, g.Width, dst)
+}
+
+// rowArea returns the area of every cell of row when all of them have the
+// same area (latitude-longitude and equal-area grids): the value
+// RowAreasRange would repeat.
+func (g *Grid) rowArea(row int) (float64, bool) {
+	if !g.Geographic && !g.EqualArea {
+		return 0, false
+	}
+	var one [1]float64
+	return g.RowAreasRange(row, 0, 1, one[:0])[0], true
 }
 
 // RowAreasRange is RowAreas for the cells c0 <= c < c1 of row only:
