@@ -27,6 +27,13 @@ func Register() {
 		if os.Getenv("OGR_CURRENT_DATE") == "" {
 			os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
 		}
+		// Each block of a model is read once per pass, so GDAL's block
+		// cache (5% of the RAM by default) would only grow the process with
+		// the raster; a small one serves the point reads. A user's own
+		// setting is kept.
+		if os.Getenv("GDAL_CACHEMAX") == "" {
+			os.Setenv("GDAL_CACHEMAX", "64")
+		}
 		godal.RegisterAll()
 	})
 }
