@@ -126,6 +126,10 @@ func (v Valid) Has(i int) bool { return v == nil || v[i>>6]>>(uint(i)&63)&1 == 1
 // a word.
 func (v Valid) SetAtomic(i int) { atomic.OrUint64(&v[i>>6], 1<<(uint(i)&63)) }
 
+// OrAtomic sets the bits of word (cells 64*word to 64*word+63 from the
+// least significant bit) atomically.
+func (v Valid) OrAtomic(word int, bits uint64) { atomic.OrUint64(&v[word], bits) }
+
 // builder accumulates members while the family is built.
 type builder struct {
 	g     *Grid

@@ -451,13 +451,24 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, 
 			}
 			weights[x] = lastW
 		}
+		vword, vbits := -1, uint64(0)
 		for x, v := range vals {
 			bins[x] = -1
 			if !in[x] || !r.valid(v) {
 				continue
 			}
 			if valid != nil {
-				valid.SetAtomic(base + x)
+				// Bits are gathered per 64-bit word and set with one
+				// atomic OR per word (blocks of other workers may share
+				// the word at their edges).
+				i := base + x
+				if i>>6 != vword {
+					if vbits != 0 {
+						valid.OrAtomic(vword, vbits)
+					}
+					vword, vbits = i>>6, 0
+				}
+				vbits |= 1 << (uint(i) & 63)
 			}
 			w := weights[x]
 			switch {
@@ -475,6 +486,9 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, 
 			st.Area += w
 			bin, hist := layout.Locate(v)
 			bins[x], hists[x] = int32(bin), int32(hist)
+		}
+		if vbits != 0 {
+			valid.OrAtomic(vword, vbits)
 		}
 		for _, seq := range groups {
 			inner := -1
