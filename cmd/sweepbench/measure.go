@@ -12,7 +12,6 @@ import (
 	"strconv"
 	"strings"
 	"sync"
-	"syscall"
 	"time"
 
 	"github.com/airbusgeo/godal"
@@ -174,15 +173,55 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	var stderr strings.Builder
 	cmd.Stderr = &stderr
 	start := time.Now()
-	if err := cmd.Run(); err != nil {
+	if err := cmd.Start(); err != nil {
+		return 0, 0, fmt.Errorf("%s: %v", b.bin, err)
+	}
+	// The peak RSS is read from /proc while the run lives: the rusage of
+	// a child started from this (large) process would report this
+	// process's own peak, inherited through the fork before exec.
+	done := make(chan struct{})
+	peak := make(chan float64, 1)
+	go func() {
+		hwm := 0.0
+		tick := time.NewTicker(20 * time.Millisecond)
+		defer tick.Stop()
+		for {
+			if v := vmHWM(cmd.Process.Pid); v > hwm {
+				hwm = v
+			}
+			select {
+			case <-done:
+				peak <- hwm
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	err := cmd.Wait()
+	t := time.Since(start).Seconds()
+	close(done)
+	rss := <-peak
+	if err != nil {
 		return 0, 0, fmt.Errorf("%s %s: %v\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
 	}
-	t := time.Since(start).Seconds()
-	rss := 0.0
-	if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-		rss = float64(ru.Maxrss) / 1024 // KiB on Linux
-	}
 	return t, rss, nil
+}
+
+// vmHWM returns the peak resident set size (MiB) of process pid from
+// /proc/pid/status, or 0 when it cannot be read.
+func vmHWM(pid int) float64 {
+	data, err := os.ReadFile(fmt.Sprintf("/proc/%d/status", pid))
+	if err != nil {
+		return 0
+	}
+	for _, line := range strings.Split(string(data), "\n") {
+		if strings.HasPrefix(line, "VmHWM:") {
+			var kb float64
+			fmt.Sscanf(strings.TrimSpace(strings.TrimPrefix(line, "VmHWM:")), "%g", &kb)
+			return kb / 1024
+		}
+	}
+	return 0
 }
 
 // baselineRun writes the family's membership with `areasweep extents
