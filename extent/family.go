@@ -909,13 +909,12 @@ func (b *builder) finish(trainCells, testCells []int) {
 						continue
 					}
 					// One float64 sum per member, cell after cell in cell
-					// order; rows of equal cells repeat one value.
+					// order; in rows of equal cells repeatAdd gives that
+					// sum without doing each addition.
 					a := area[k]
 					if same, ok := g.rowArea(row); ok {
 						for i := 0; i < len(r); i += 2 {
-							for c := r[i]; c < r[i+1]; c++ {
-								a += same
-							}
+							a = repeatAdd(a, same, int(r[i+1]-r[i]))
 						}
 					} else {
 						for i := 0; i < len(r); i += 2 {

@@ -1,6 +1,7 @@
 package extent
 
 import (
+	"math"
 	"math/bits"
 	"slices"
 )
@@ -221,4 +222,49 @@ func dropEmpty(r rowRuns) rowRuns {
 		}
 	}
 	return out
+}
+
+// repeatAdd returns the float64 result of adding a to s n times in a row
+// (s += a, n times, each sum rounded), for s >= 0 and a > 0, without
+// doing every addition. While s stays in one binade [2^(e-1), 2^e) and the
+// sum stays below its top, each rounded sum adds the same multiple of the
+// binade's ulp (a rounded to that grid; exact halves, which round to even
+// and so depend on s, are done one by one), so whole stretches of additions
+// are one exact multiplication. The result is bit for bit the loop's.
+func repeatAdd(s, a float64, n int) float64 {
+	for n > 0 {
+		if s == 0 || math.IsInf(s, 0) || math.IsNaN(s) || !(a > 0) {
+			s += a
+			n--
+			continue
+		}
+		_, e := math.Frexp(s)    // s in [2^(e-1), 2^e)
+		A := math.Ldexp(a, 53-e) // a in units of the ulp 2^(e-53)
+		S := math.Ldexp(s, 53-e) // an integer in [2^52, 2^53)
+		frac := A - math.Floor(A)
+		if frac == 0.5 || A >= 1<<52 {
+			s += a
+			n--
+			continue
+		}
+		d := math.Floor(A)
+		if frac > 0.5 {
+			d++
+		}
+		if d == 0 {
+			return s // a is below half an ulp: s no longer changes
+		}
+		// Steps j = 0..k-1 keep S + j d + A at least two ulps below 2^53,
+		// so each rounded sum is S + (j+1) d, inside the binade.
+		k := math.Floor((1<<53 - 2 - S - A) / d)
+		if k < 1 {
+			s += a
+			n--
+			continue
+		}
+		k = math.Min(k, float64(n))
+		s = math.Ldexp(S+k*d, e-53)
+		n -= int(k)
+	}
+	return s
 }

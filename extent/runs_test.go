@@ -2,6 +2,7 @@ package extent
 
 import (
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -139,6 +140,48 @@ func TestSpan(t *testing.T) {
 					}
 				})
 			}
+		}
+	}
+}
+
+// TestRepeatAdd: repeatAdd gives bit for bit the float64 sum of adding a
+// value n times in a row, on random starting sums, cell areas (km^2 of
+// cells from 30 m to 1 degree), run lengths, and values made to fall on
+// exact halves of an ulp (round-half-to-even cases), against the loop.
+func TestRepeatAdd(t *testing.T) {
+	rng := rand.New(rand.NewPCG(17, 19))
+	loop := func(s, a float64, n int) float64 {
+		for i := 0; i < n; i++ {
+			s += a
+		}
+		return s
+	}
+	for trial := 0; trial < 20000; trial++ {
+		var s, a float64
+		switch trial % 5 {
+		case 0: // a running area sum and a cell area
+			s = math.Ldexp(rng.Float64(), rng.IntN(40)-10)
+			a = math.Ldexp(0.5+rng.Float64(), rng.IntN(16)-12)
+		case 1: // from zero
+			a = rng.Float64() * 100
+		case 2: // exact half ulps of s
+			s = math.Ldexp(1+rng.Float64(), rng.IntN(30))
+			_, e := math.Frexp(s)
+			a = math.Ldexp(float64(2*rng.IntN(50)+1), e-54)
+		case 3: // tiny increments, below half an ulp or near it
+			s = math.Ldexp(1+rng.Float64(), 30)
+			a = math.Ldexp(rng.Float64(), -24+rng.IntN(4))
+		case 4: // just below a power of two: the sums cross binades
+			e := rng.IntN(20)
+			s = math.Ldexp(1, e) - math.Ldexp(float64(rng.IntN(1000)), e-53)
+			a = math.Ldexp(float64(rng.IntN(7)+1)+rng.Float64(), e-53)
+		}
+		n := rng.IntN(3000)
+		if trial%50 == 0 {
+			n = 200000
+		}
+		if got, want := repeatAdd(s, a, n), loop(s, a, n); math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("repeatAdd(%v, %v, %d) = %v, loop gives %v", s, a, n, got, want)
 		}
 	}
 }
