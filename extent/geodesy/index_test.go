@@ -349,19 +349,31 @@ func TestRectifying(t *testing.T) {
 }
 
 // TestStretchMax: k = N cos(phi) / (R_r cos(mu)) = a cos(beta) / (R_r
-// cos(mu)) stays at or below stretchMax on a 0.001-degree grid (k = a/R_r
-// at the equator; by the formulas in the Index comment), and
+// cos(mu)) stays at or below stretchMax and falls with latitude on a
+// 0.001-degree grid (k = a/R_r at the equator; by the formulas in the Index
+// comment), and
 // NearestBounds brackets the exact nearest distance from Nearest (itself
 // checked against brute-force Inverse in this file) for random queries
 // near and far from random sites, and reports (maxDist, +Inf) only when
 // Nearest finds no site within maxDist.
 func TestStretchMax(t *testing.T) {
+	prev := math.Inf(1)
 	for k := 0; k < 90000; k++ {
 		phi := float64(k) / 1000 * math.Pi / 180
 		beta := math.Atan2((1-Flattening)*math.Sin(phi), math.Cos(phi))
-		if kk := SemiMajor * math.Cos(beta) / (rectRadius * math.Cos(rectifying(phi))); kk > stretchMax {
+		kk := SemiMajor * math.Cos(beta) / (rectRadius * math.Cos(rectifying(phi)))
+		if kk > stretchMax {
 			t.Fatalf("k = %v > %v at %v deg", kk, stretchMax, float64(k)/1000)
 		}
+		// Rounding near the pole moves k by ~1e-11; NearestBounds allows
+		// 1e-9 (our own margin).
+		if kk > prev*(1+1e-10) || kk < 1-1e-9 {
+			t.Fatalf("k = %v at %v deg: not falling with latitude from %v, or below 1", kk, float64(k)/1000, prev)
+		}
+		if got := stretchAt(float64(k) / 1000); got != kk {
+			t.Fatalf("stretchAt(%v) = %v, want %v", float64(k)/1000, got, kk)
+		}
+		prev = kk
 	}
 	rng := rand.New(rand.NewPCG(5, 9))
 	lats := make([]float64, 300)
