@@ -458,7 +458,9 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 			}
 			dist := make([]float64, tileSide*g.Width)
 			open := make([]int32, len(cuts))
+			rhos := map[[3]int]float64{}
 			for r0 := range bands {
+				clear(rhos)
 				off := r0 * g.Width
 				set := func(i int, d float64) { dist[i-off] = d }
 				r1 := min(r0+tileSide, g.Height)
@@ -475,7 +477,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				var classify func(t0, t1, c0, c1 int)
 				classify = func(t0, t1, c0, c1 int) {
 					if t1-t0 > 2 && c1-c0 > 2 {
-						if b.wholeTile(ix, maxD, gap, set, lons, lats, r0, t0, t1, c0, c1) {
+						if b.wholeTile(ix, maxD, gap, set, lons, lats, r0, t0, t1, c0, c1, rhos) {
 							return
 						}
 						tm, cm := (t0+t1)/2, (c0+c1)/2
@@ -565,28 +567,37 @@ func intervalGap(cuts []float64, lo, hi float64) float64 {
 // one query when it can, and reports whether it did. lons and lats hold
 // the rows of the band starting at row band.
 func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	lons, lats [][]float64, band, r0, r1, c0, c1 int) bool {
+	lons, lats [][]float64, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) bool {
 	g := b.g
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
 	clat, clon := lats[kc][cc], lons[kc][cc]
 	if math.IsNaN(clat) {
 		return false
 	}
-	rho := 0.0
-	for _, k := range []int{r0 - band, r1 - 1 - band} {
-		for _, c := range []int{c0, c1 - 1} {
-			if math.IsNaN(lats[k][c]) {
-				return false
+	// On latitude-longitude grids, tiles of one shape in one band have the
+	// same radius (to rounding far inside the margin below): it is
+	// computed once per band and shape.
+	key := [3]int{r0 - band, r1 - band, c1 - c0}
+	rho, known := rhos[key]
+	if !known {
+		for _, k := range []int{r0 - band, r1 - 1 - band} {
+			for _, c := range []int{c0, c1 - 1} {
+				if math.IsNaN(lats[k][c]) {
+					return false
+				}
+				rho = math.Max(rho, sphereDistance(clat, clon, lats[k][c], lons[k][c]))
 			}
-			rho = math.Max(rho, sphereDistance(clat, clon, lats[k][c], lons[k][c]))
+		}
+		// Corner cells are the farthest from the centre cell on these
+		// small, convex tiles. The great-circle distance on a sphere of the
+		// equatorial radius is within 0.35% of the geodesic (the
+		// ellipsoid's radii of curvature lie between b^2/a and a^2/b); the
+		// factor covers that and the curvature of the tile's edges.
+		rho = rho*1.02 + 1
+		if g.Geographic {
+			rhos[key] = rho
 		}
 	}
-	// Corner cells are the farthest from the centre cell on these small,
-	// convex tiles. The great-circle distance on a sphere of the equatorial
-	// radius is within 0.35% of the geodesic (the ellipsoid's radii of
-	// curvature lie between b^2/a and a^2/b); the factor covers that and
-	// the curvature of the tile's edges.
-	rho = rho*1.02 + 1
 	// Bounds from the chord stage settle most tiles without a geodesic;
 	// any value in [lo, hi] is then in the class of every cell.
 	d := math.Inf(1)
