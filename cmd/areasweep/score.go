@@ -162,7 +162,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 			continue
 		}
 		sc.Scored = true
-		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCBootSD = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCBootSD
+		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCBootSD = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCSE
 		for _, p := range out.PartialROC {
 			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
 				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
