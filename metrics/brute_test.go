@@ -72,9 +72,10 @@ func bruteCurve(bgV []float64, bgW []int64, test []float64) []Point {
 
 // brutePartial walks the polyline to the first point at height 1-E,
 // interpolating on the crossing segment, and integrates trapezoids to x=1.
-// tie reports a crossing strictly inside a segment that holds two or more
-// of the n presences (a tie: formed is then false).
-func brutePartial(pts []Point, e float64, n int) (xE, model, null float64, formed, tie bool, tieEnd Point) {
+// tie reports a crossing strictly inside the segment of a value that two
+// or more of the original presences share (tiedAt counts them; a tie:
+// formed is then false).
+func brutePartial(pts []Point, e float64, tiedAt func(y0, y1 float64) int) (xE, model, null float64, formed, tie bool, tieEnd Point) {
 	target := 1 - e
 	k := 1
 	for ; k < len(pts); k++ {
@@ -86,7 +87,7 @@ func brutePartial(pts []Point, e float64, n int) (xE, model, null float64, forme
 	s := (target - p0.Y) / (p1.Y - p0.Y)
 	s = math.Max(0, math.Min(1, s))
 	xE = p0.X + s*(p1.X-p0.X)
-	if math.Round((p1.Y-p0.Y)*float64(n)) >= 2 && s > 1e-9 && s < 1-1e-9 && xE < 1 {
+	if s > 1e-9 && s < 1-1e-9 && xE < 1 && tiedAt(p0.Y, p1.Y) >= 2 {
 		return xE, 0, 0, false, true, p1
 	}
 	model = (p1.X - xE) * (target + p1.Y) / 2
@@ -95,6 +96,32 @@ func brutePartial(pts []Point, e float64, n int) (xE, model, null float64, forme
 	}
 	null = (1 - xE*xE) / 2
 	return xE, model, null, null > 0, false, Point{}
+}
+
+// tiesOf returns, for the segment of the curve over the presences res
+// between heights y0 and y1, how many of the original presences orig share
+// the segment's value (the k1-th largest of res, k1 = y1 n).
+func tiesOf(res, orig []float64) func(y0, y1 float64) int {
+	return func(y0, y1 float64) int {
+		n := float64(len(res))
+		k0, k1 := int(math.Round(y0*n)), int(math.Round(y1*n))
+		if k1 <= k0 {
+			return 0
+		}
+		// Presences at or above the segment's value number k1; the value is
+		// the k1-th largest.
+		s := slices.Clone(res)
+		slices.Sort(s)
+		slices.Reverse(s)
+		u := s[k1-1]
+		c := 0
+		for _, v := range orig {
+			if v == u {
+				c++
+			}
+		}
+		return c
+	}
 }
 
 // randomCase draws a case with many ties: integer values, integer weights,
@@ -144,7 +171,7 @@ func TestBruteForce(t *testing.T) {
 		}
 		pts := bruteCurve(c.bgV, c.bgW, c.test)
 		for i, e := range es {
-			xE, model, null, formed, tie, end := brutePartial(pts, e, len(c.test))
+			xE, model, null, formed, tie, end := brutePartial(pts, e, tiesOf(c.test, c.test))
 			p := sc.PartialROC[i]
 			if formed {
 				formedN++
@@ -255,7 +282,7 @@ func TestBootstrapBruteForce(t *testing.T) {
 			}
 			pts := bruteCurve(c.bgV, c.bgW, res)
 			for i, e := range s.E {
-				_, model, null, ok, _, _ := brutePartial(pts, e, len(res))
+				_, model, null, ok, _, _ := brutePartial(pts, e, tiesOf(res, c.test))
 				if !ok {
 					notFormed[i]++
 					continue
@@ -287,8 +314,11 @@ func TestBootstrapBruteForce(t *testing.T) {
 				}
 				continue
 			}
-			if len(rs) < 2 {
-				t.Fatalf("case %d E=%v: only %d formed resamples", it, s.E[i], len(rs))
+			if len(rs) == 1 {
+				if p.NotFormed != notFormed[i] || !near(p.RatioMean, rs[0], 1e-11) || p.RatioSD != 0 {
+					t.Errorf("case %d E=%v: one formed resample %v, got %+v", it, s.E[i], rs[0], p)
+				}
+				continue
 			}
 			// type 7 percentile written out
 			q := func(pr float64) float64 {

@@ -322,8 +322,11 @@ type Resampled struct {
 type Comparison struct {
 	// Common is the number of test presences both evaluators hold.
 	Common int
-	// AUC and AUCUnweighted come from the placements (PairedPlacements).
-	AUC, AUCUnweighted Interval
+	// AUC and AUCUnweighted come from the placements (PairedPlacements);
+	// AUCOn and AUCUnweightedOn are the two sides' AUCs on the common
+	// presences (the means of their placements there).
+	AUC, AUCUnweighted     Interval
+	AUCOn, AUCUnweightedOn [2]float64
 	// PartialROC (per E), Omission (per threshold) and Boyce come from the
 	// paired resamples.
 	PartialROC []Resampled
@@ -376,6 +379,10 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	}
 	cmp.AUC = PairedPlacements(va, vb)
 	cmp.AUCUnweighted = PairedPlacements(ua, ub)
+	if len(pa) > 0 {
+		cmp.AUCOn = [2]float64{mean(va), mean(vb)}
+		cmp.AUCUnweightedOn = [2]float64{mean(ua), mean(ub)}
+	}
 
 	ca, cb := make([]int32, len(a.ids)), make([]int32, len(b.ids))
 	for k := range pa {

@@ -132,8 +132,9 @@ type partialResult struct {
 // partialArea computes the partial ROC areas of the curve formed by the
 // presences with counts[g] presences at group g (descending value order,
 // r presences in all). When the crossing falls strictly inside the
-// segment of a value shared by two or more test presences, the areas are
-// still computed with the interpolated x_E but how is crossTie.
+// segment of a value shared by two or more distinct test presences of the
+// full set (p.count, not counts: a resample that draws one presence twice
+// makes no tie), how is crossTie and the areas are left at 0.
 func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
 	rf := float64(r)
 	tau := snapCount((1 - e) * rf)
@@ -158,7 +159,7 @@ func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
 				res.xE = xb
 			} else {
 				res.xE = xa + s*(xb-xa)
-				if c >= 2 && s > 0 {
+				if p.count[g] >= 2 && s > 0 {
 					res.how, res.tied, res.tieGroup = crossTie, c, g
 				}
 			}
