@@ -170,8 +170,11 @@ func undefinedWhy(m MetricInfo, s *Score) string {
 	for _, p := range s.PartialROC {
 		if math.Abs(p.E-m.E) <= 1e-12 && !p.Defined && p.Reason != "" {
 			out := " (" + p.Reason
-			if p.DiscreteDefined {
+			switch {
+			case p.DiscreteDefined:
 				out += fmt.Sprintf("; read at thresholds only, x_E = %s and the ratio is %s", f3(p.DiscreteXE), f3(p.DiscreteRatio))
+			case p.TiedAtCrossing > 0:
+				out += "; read at thresholds only, the threshold that keeps the tied test points keeps the whole area, so no ratio can be formed"
 			}
 			return out + ")"
 		}
