@@ -201,7 +201,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		}
 		s.res.Curves = append(s.res.Curves, cv)
 		s.res.Scores = append(s.res.Scores, sc)
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
 	s.logf("%s: scores on %d extents (bootstraps included) in %.1f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, accs, presence); err != nil {
@@ -211,11 +211,11 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	return nil
 }
 
-func firstRatio(sc report.Score) float64 {
-	if len(sc.PartialROC) == 0 {
-		return 0
+func firstRatio(sc report.Score) string {
+	if len(sc.PartialROC) == 0 || !sc.PartialROC[0].Defined {
+		return "undefined"
 	}
-	return sc.PartialROC[0].Ratio
+	return fmt.Sprintf("%.4f", sc.PartialROC[0].Ratio)
 }
 
 // aucOf is the area-weighted Mann-Whitney AUC of presence values against
