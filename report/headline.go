@@ -55,7 +55,10 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 // ...)" for a model verdict.
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
-		return mv.Verdict
+		if !mv.BaseDefined {
+			return mv.Verdict + " (undefined on " + mv.Base + ")"
+		}
+		return mv.Verdict + " (no difference could be formed)"
 	}
 	d := mv.Diffs[mv.Largest]
 	if d.Method == "exact" {

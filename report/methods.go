@@ -250,7 +250,11 @@ func reviewerText(r *Results) string {
 		fmt.Fprintf(&b, " spanning %s–%s km²", fmtArea(lo), fmtArea(hi))
 	}
 	if s.TestPointsVary {
-		fmt.Fprintf(&b, " (%s of the %d test records fall inside each extent, and each is scored on those)", testPointText(s), r.PointCounts.Test)
+		lo, hi := s.TestPoints[0], s.TestPoints[0]
+		for _, n := range s.TestPoints {
+			lo, hi = min(lo, n), max(hi, n)
+		}
+		fmt.Fprintf(&b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
 	}
 	b.WriteString(". ")
 	fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we fixed in advance (AUC ±%s, partial ROC ratio ±%s, omission ±%s, Boyce index ±%s). ",
@@ -267,10 +271,10 @@ func reviewerText(r *Results) string {
 		}
 	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s moved with the extent by more than its tolerance for at least one model. ", upperFirst(joinList(sensitive)))
+		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
 	}
 	if len(robust) > 0 {
-		fmt.Fprintf(&b, "%s stayed within its tolerance for every model. ", upperFirst(joinList(robust)))
+		fmt.Fprintf(&b, "%s stayed within the tolerance for every model. ", upperFirst(joinList(robust)))
 	}
 	if len(undetermined) > 0 {
 		fmt.Fprintf(&b, "For %s our test records are too few (or the score undefined) to tell. ", joinList(undetermined))

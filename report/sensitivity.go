@@ -206,14 +206,16 @@ type ExtentDifference struct {
 //	                 the largest difference and its interval), or no
 //	                 difference could be formed
 type ModelVerdict struct {
-	Metric    string             `json:"metric"`
-	Label     string             `json:"label"`
-	Model     string             `json:"model"`
-	Tolerance float64            `json:"tolerance"`
-	Verdict   string             `json:"verdict"`
-	Base      string             `json:"base_extent"`
-	BaseValue float64            `json:"base_value"`
-	Diffs     []ExtentDifference `json:"differences"`
+	Metric    string  `json:"metric"`
+	Label     string  `json:"label"`
+	Model     string  `json:"model"`
+	Tolerance float64 `json:"tolerance"`
+	Verdict   string  `json:"verdict"`
+	Base      string  `json:"base_extent"`
+	BaseValue float64 `json:"base_value"`
+	// BaseDefined is false when the metric is undefined on the base extent.
+	BaseDefined bool               `json:"base_defined"`
+	Diffs       []ExtentDifference `json:"differences"`
 	// Largest is the index in Diffs of the defined difference with the
 	// largest |Diff| (-1 when none).
 	Largest int `json:"largest"`

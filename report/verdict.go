@@ -96,6 +96,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	}
 	var baseOK bool
 	mv.BaseValue, baseOK, _, _, _, _ = metricValue(m, bs)
+	mv.BaseDefined = baseOK
 	outside := 0
 	for _, e := range a.extents {
 		if e.ID == a.base || a.score(model, e.ID) == nil {

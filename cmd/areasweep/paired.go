@@ -2,6 +2,8 @@ package main
 
 import (
 	"fmt"
+	"runtime"
+	"sync"
 
 	"areasweep/metrics"
 	"areasweep/report"
@@ -77,34 +79,57 @@ func (s *session) paired() error {
 		}
 	}
 	base := report.BaseExtent(okIDs)
+	type job struct{ kind, ma, ea, mb, eb string }
+	var jobs []job
 	for _, m := range s.models {
 		if scored(m.Name, base) == nil {
 			continue
 		}
 		for _, id := range okIDs {
-			if id == base || scored(m.Name, id) == nil {
-				continue
+			if id != base && scored(m.Name, id) != nil {
+				jobs = append(jobs, job{"extent", m.Name, id, m.Name, base})
 			}
-			rs, err := s.comparePair("extent", m.Name, id, m.Name, base)
-			if err != nil {
-				return err
-			}
-			s.res.Paired = append(s.res.Paired, rs...)
 		}
 	}
 	for _, id := range okIDs {
 		for i, a := range s.models {
 			for _, b := range s.models[i+1:] {
-				if scored(a.Name, id) == nil || scored(b.Name, id) == nil {
-					continue
+				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
+					jobs = append(jobs, job{"model", a.Name, id, b.Name, id})
 				}
-				rs, err := s.comparePair("model", a.Name, id, b.Name, id)
-				if err != nil {
-					return err
-				}
-				s.res.Paired = append(s.res.Paired, rs...)
 			}
 		}
+	}
+	// Each comparison is deterministic on its own; run them on the workers
+	// and keep the results in job order.
+	out := make([][]report.Paired, len(jobs))
+	errs := make([]error, len(jobs))
+	workers := s.o.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for w := 0; w < min(workers, max(1, len(jobs))); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				j := jobs[i]
+				out[i], errs[i] = s.comparePair(j.kind, j.ma, j.ea, j.mb, j.eb)
+			}
+		}()
+	}
+	for i := range jobs {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for i := range jobs {
+		if errs[i] != nil {
+			return errs[i]
+		}
+		s.res.Paired = append(s.res.Paired, out[i]...)
 	}
 	return nil
 }
