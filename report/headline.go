@@ -29,7 +29,13 @@ func (s *Sensitivity) findDecomposition(key string) *Decomposition {
 // areaRange formats "from A to B km²", in thousands when B >= 10,000.
 func areaRange(lo, hi float64) string {
 	if hi >= 1e4 {
-		return fmt.Sprintf("from %s to %s thousand km²", trimFloat(lo/1000, 2+boolInt(lo >= 1e4)), trimFloat(hi/1000, 3))
+		thousands := func(v float64, sig int) string {
+			if v >= 1000 {
+				return groupThousands(int64(math.Round(v)))
+			}
+			return trimFloat(v, sig)
+		}
+		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo/1000, 2+boolInt(lo >= 1e4)), thousands(hi/1000, 3))
 	}
 	return fmt.Sprintf("from %s to %s km²", fmtArea(lo), fmtArea(hi))
 }

@@ -124,7 +124,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
 		if !baseOK {
-			why = fmt.Sprintf("it is undefined on the base extent %s%s", a.base, undefinedWhy(m, bs))
+			why = fmt.Sprintf("it is undefined on %s, the base extent%s", a.base, undefinedWhy(m, bs))
 		}
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return mv

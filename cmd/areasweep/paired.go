@@ -169,6 +169,15 @@ func PairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metri
 		return nil, err
 	}
 	fa, fb := a.Full(), b.Full()
+	// shift is how much the change of test points moved the score; it is
+	// exactly 0 when both sides hold the same points.
+	same := cmp.Common == a.N() && cmp.Common == b.N()
+	shift := func(ownA, ownB, diff float64) float64 {
+		if same {
+			return 0
+		}
+		return (ownA - ownB) - diff
+	}
 	rec := func(metric string) report.Paired {
 		return report.Paired{Metric: metric, Kind: kind, Model: ma, Extent: ea, OtherModel: mb, OtherExtent: eb, CommonPoints: cmp.Common}
 	}
@@ -178,7 +187,7 @@ func PairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metri
 		p.Method, p.Defined = "placements", iv.Defined
 		if iv.Defined {
 			p.A, p.B, p.Diff, p.SE, p.Low, p.High = comA, comB, iv.Diff, iv.SE, iv.Low, iv.High
-			p.TestSetShift = (ownA - ownB) - iv.Diff
+			p.TestSetShift = shift(ownA, ownB, iv.Diff)
 		}
 		out = append(out, p)
 	}
@@ -191,7 +200,7 @@ func PairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metri
 		if r.Defined {
 			p.A, p.B, p.Diff, p.SE, p.Low, p.High = r.A, r.B, r.Diff, r.SD, r.Low, r.High
 			if ownOK {
-				p.TestSetShift = (ownA - ownB) - r.Diff
+				p.TestSetShift = shift(ownA, ownB, r.Diff)
 			}
 		}
 		out = append(out, p)
