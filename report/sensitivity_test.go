@@ -584,6 +584,58 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 				t.Errorf("no mix warning in %v", r.Sensitivity.Warnings)
 			}
 		}},
+		{"undefined partial ROC on base leaves the verdict undetermined", func(r *Results) {
+			for i := range r.Scores {
+				sc := &r.Scores[i]
+				if sc.Model == "good" && sc.Extent == "base" {
+					sc.PartialROC[0].Defined, sc.PartialROC[0].Ratio = false, 0
+					sc.PartialROC[0].Reason = "the 1 - E crossing falls among test points tied at one value"
+					sc.PartialROC[0].TiedAtCrossing, sc.PartialROC[0].DiscreteDefined = 3, true
+					sc.PartialROC[0].DiscreteXE, sc.PartialROC[0].DiscreteRatio = 0.5, 1.25
+				}
+			}
+			for i := range r.Paired {
+				p := &r.Paired[i]
+				if p.Metric == "partial_roc_e0.05" && p.Kind == "extent" && p.Model == "good" {
+					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
+				}
+			}
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			mv := r.Sensitivity.findModelVerdict("partial_roc_e0.05", "good")
+			if mv == nil || mv.Verdict != "undetermined" || mv.BaseDefined || mv.Largest != -1 ||
+				!strings.Contains(mv.Sentence, "tied at one value") || !strings.Contains(mv.Sentence, "the ratio is 1.250") {
+				t.Errorf("verdict %+v", mv)
+			}
+		}},
+		{"a flat run at y = 1 is not truncation, a tie below it is", func(r *Results) {
+			for i := range r.Models {
+				r.Models[i].FloorShare = 0
+			}
+			for i := range r.Curves {
+				c := &r.Curves[i]
+				switch {
+				case c.Model == "good" && c.Extent == "whole":
+					c.X, c.Y = []float64{0, 0.3, 0.5, 1}, []float64{0, 0.8, 1, 1} // flat from 0.5 to 1 at y = 1
+				case c.Model == "broad" && c.Extent == "whole":
+					c.X, c.Y = []float64{0, 0.3, 0.5, 1}, []float64{0, 0.8, 0.9, 1} // tie from y = 0.9
+				default:
+					c.X, c.Y = []float64{0, 0.9, 1}, []float64{0, 1, 1}
+				}
+			}
+		}, func(t *testing.T, r *Results, err error) {
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, tc := range r.Sensitivity.Truncation {
+				want := tc.Model == "broad"
+				if tc.Flag != want || (want && (len(tc.Tails) != 1 || tc.Tails[0].Extent != "whole" || tc.Tails[0].Jump != 0.5)) {
+					t.Errorf("%s: flag %v tails %+v, want flag %v", tc.Model, tc.Flag, tc.Tails, want)
+				}
+			}
+		}},
 		{"distances not computed", func(r *Results) {
 			for i := range r.Points {
 				r.Points[i].NearestTrainKm = 0
@@ -607,6 +659,26 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 			err := Analyze(r)
 			c.check(t, r, err)
 		})
+	}
+}
+
+// TestRingClause: what a ring sentence says follows the ring's AUC
+// (hand-made steps).
+func TestRingClause(t *testing.T) {
+	cases := []struct {
+		ring, inner float64
+		want        string
+	}{
+		{0.95, 0.80, "raises the score"},
+		{0.71, 0.80, "adding it lowers the score"},
+		{0.40, 0.45, "more often than not"},
+		{0.80, 0.80, "unchanged"},
+	}
+	for _, c := range cases {
+		got := ringClause(ChainStep{Inner: "a", AUCRing: c.ring, AUCInner: c.inner})
+		if !strings.Contains(got, c.want) || strings.Contains(got, "far-away") {
+			t.Errorf("ring %v inner %v: %q, want it to say %q", c.ring, c.inner, got, c.want)
+		}
 	}
 }
 
