@@ -279,8 +279,14 @@ func (e *Evaluator) Full() Values { return e.eval(e.ones(nil)) }
 // BootSD returns the sample standard deviation (denominator B-1) of the
 // area-weighted AUC over the resamples of d restricted to the evaluator's
 // own presences (resamples that draw none of them are skipped), and the
-// number of resamples used. It returns 0 when fewer than 2 are used.
+// number of resamples used. It returns 0 when fewer than 2 are used or a
+// global index lies outside 0..d.N-1.
 func (e *Evaluator) BootSD(d Draws) (float64, int) {
+	for _, id := range e.ids {
+		if id < 0 || id >= d.N {
+			return 0, 0 // ids outside the draws: nothing to resample
+		}
+	}
 	global := make([]int32, d.N)
 	own := make([]int32, len(e.ids))
 	var aucs []float64
