@@ -22,7 +22,7 @@ func writeSample(t testing.TB) (string, *Results) {
 	return dir, r
 }
 
-var figureNames = []string{"metrics_vs_area", "roc_curves", "map", "rings"}
+var figureNames = []string{"metrics_vs_area", "roc_curves", "extent_maps", "ring_steps"}
 
 // TestWriteFiles checks that every file is there, the PNGs decode at a
 // readable size, no temp files are left, and a second write is
@@ -218,8 +218,6 @@ func TestFormatting(t *testing.T) {
 		{signed3(0.0312), "+0.031"},
 		{signed3(-0.0004), "+0.000"},
 		{pct(0.714), "71%"},
-		{shortArea(50000), "50k"},
-		{shortArea(2e6), "2M"},
 	}
 	for _, c := range cases {
 		if c.got != c.want {
