@@ -263,7 +263,7 @@ func mapFigure(r *Results) (figure, bool) {
 	}
 	sharedRows := legendRows(shared, f.W/2)
 	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, 30*vg.Millimeter) + vg.Points(4)
-	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH)
+	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
 	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together), each outline in its own colour and dash. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
@@ -286,6 +286,7 @@ func mapFigure(r *Results) (figure, bool) {
 			img.Set(i%w, i/w, c)
 		}
 		bottom, rest := splitBottom(dc, bottomH)
+		rest.Max.Y -= vg.Points(2)
 		cw, ch := (east-west)/float64(w), (north-south)/float64(h)
 		var scaleKmPerPt float64
 		for gi, g := range groups {

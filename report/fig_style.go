@@ -163,7 +163,7 @@ func rampColor(stops [][3]float64, t float64) color.RGBA {
 // width w so that it is never clipped.
 func newPlot(title string, w vg.Length) *plot.Plot {
 	p := plot.New()
-	p.BackgroundColor = color.Transparent
+	p.BackgroundColor = nil // the figure's white page shows through
 	p.Title.Text = wrapText(title, titleFontPt, w)
 	// Only fonts and colours change: plot.New's alignments stay.
 	p.Title.TextStyle.Font = font.From(sansFont, titleFontPt)

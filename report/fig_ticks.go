@@ -11,9 +11,14 @@ import (
 // Tick generators. Every label is the exact decimal of its tick's value:
 // ticks sit at whole multiples of a step of 1, 2, 2.5 or 5 x 10^k, and the
 // label carries as many decimals as the step needs (two for 0.25, one for
-// 0.5, none for 25). gonum's default generator can place ticks off those
-// multiples and print them with too few decimals (ticks at 1.05 and 1.25
-// labelled "1.1" and "1.2"), which is why the figures do not use it.
+// 0.5, none for 25).
+//
+// The figures do not use gonum's default generator (plot.DefaultTicks,
+// v0.17): its search may start the labels at an offset from the step's
+// multiples (1.05, 1.25, 1.45, 1.65 for a step of 0.2 on 1.001..1.653) but
+// it picks the decimals from the step alone, so those labels print as
+// "1.1", "1.2", "1.5", "1.7" at evenly spaced ticks.
+// TestAxisCheckOnTheOldDefect keeps that case.
 
 // maxTicks is the most labelled ticks on one axis (our choice: enough to
 // read a value, few enough to stay apart at 8 pt on a 40 mm axis).
@@ -52,11 +57,17 @@ func maxInt(a, b int) int {
 	return b
 }
 
-// multiples returns the whole multiples of step in [min, max].
+// multiples returns the whole multiples of step in [min, max]. A step
+// below 1 is divided out of a power of ten, so each value is the double
+// nearest its decimal (0.3, not 0.30000000000000004).
 func multiples(min, max, step float64) []float64 {
+	e := math.Floor(math.Log10(step) + 1e-9)
 	var vs []float64
 	for k := math.Ceil(min/step - 1e-9); k*step <= max+step*1e-9; k++ {
 		v := k * step
+		if e < 0 {
+			v = math.Round(k*step*math.Pow10(int(-e+1))) / math.Pow10(int(-e+1))
+		}
 		if math.Abs(v) < step*1e-9 {
 			v = 0
 		}

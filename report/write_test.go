@@ -8,18 +8,50 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 )
 
-// writeSample analyses the sample and writes the report into a temp dir.
+// shared holds one report written from the analysed sample, reused by the
+// tests that only read it (writing takes a few seconds: 300 dpi PNGs).
+var shared struct {
+	once sync.Once
+	dir  string
+	r    *Results
+	err  error
+}
+
+// TestMain removes the shared report folder after the tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if shared.dir != "" {
+		os.RemoveAll(shared.dir)
+	}
+	os.Exit(code)
+}
+
+// writeSample returns a folder holding the report of the analysed sample
+// and the results it was written from. Callers must not change either.
 func writeSample(t testing.TB) (string, *Results) {
 	t.Helper()
-	r := analyzedSample(t)
-	dir := t.TempDir()
-	if err := Write(dir, r); err != nil {
-		t.Fatal(err)
+	shared.once.Do(func() {
+		r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+		if err == nil {
+			err = Analyze(r)
+		}
+		var dir string
+		if err == nil {
+			dir, err = os.MkdirTemp("", "areasweep-report-test-")
+		}
+		if err == nil {
+			err = Write(dir, r)
+		}
+		shared.dir, shared.r, shared.err = dir, r, err
+	})
+	if shared.err != nil {
+		t.Fatal(shared.err)
 	}
-	return dir, r
+	return shared.dir, shared.r
 }
 
 var figureNames = []string{"metrics_vs_area", "roc_curves", "extent_maps", "ring_steps"}
@@ -31,7 +63,9 @@ func TestWriteFiles(t *testing.T) {
 	dir, r := writeSample(t)
 	want := []string{"report.html", "methods.md"}
 	for _, f := range figureNames {
-		want = append(want, filepath.Join("figures", f+".svg"), filepath.Join("figures", f+".png"))
+		for _, ext := range figureFormats {
+			want = append(want, filepath.Join("figures", f+"."+ext))
+		}
 	}
 	first := map[string][]byte{}
 	for _, name := range want {
@@ -45,9 +79,13 @@ func TestWriteFiles(t *testing.T) {
 			if err != nil {
 				t.Fatalf("%s: %v", name, err)
 			}
-			if b := img.Bounds(); b.Dx() < 800 || b.Dy() < 300 {
-				t.Errorf("%s is only %dx%d pixels", name, b.Dx(), b.Dy())
+			// 300 dpi at one or two journal columns (85 or 175 mm).
+			if b := img.Bounds(); b.Dx() != 1004 && b.Dx() != 2067 {
+				t.Errorf("%s is %d pixels wide, want 1004 or 2067 (85 or 175 mm at 300 dpi)", name, b.Dx())
 			}
+		}
+		if strings.HasSuffix(name, ".pdf") && !bytes.HasPrefix(data, []byte("%PDF-")) {
+			t.Errorf("%s is not a PDF", name)
 		}
 		if strings.HasSuffix(name, ".svg") && !bytes.Contains(data, []byte("<svg")) {
 			t.Errorf("%s is not an SVG", name)
