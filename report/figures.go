@@ -119,7 +119,7 @@ func render(f figure, format string) ([]byte, error) {
 		return nil, fmt.Errorf("report: figure %s: write %s: %w", f.Name, strings.ToUpper(format), err)
 	}
 	if format == "svg" {
-		return fixSVGImages(buf.Bytes()), nil
+		return fixSVG(buf.Bytes()), nil
 	}
 	return buf.Bytes(), nil
 }
@@ -135,9 +135,11 @@ func inlineSVG(svg []byte, id, label string) string {
 	return strings.Replace(s, "<svg", attrs, 1)
 }
 
-// fixSVGImages makes embedded raster images fill their rectangle (the map
+// fixSVG makes embedded raster images fill their rectangle (the map
 // preview is stretched to the data extent, not letterboxed) and keeps their
-// cells sharp.
-func fixSVGImages(svg []byte) []byte {
-	return bytes.ReplaceAll(svg, []byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `))
+// cells sharp, and names fonts with the same widths as Liberation Sans
+// (Arial, Helvetica) for viewers that lack it.
+func fixSVG(svg []byte) []byte {
+	svg = bytes.ReplaceAll(svg, []byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `))
+	return bytes.ReplaceAll(svg, []byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"))
 }
