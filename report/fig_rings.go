@@ -1,7 +1,6 @@
 package report
 
 import (
-	"fmt"
 	"image/color"
 	"math"
 
@@ -10,185 +9,217 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 )
 
-// Step colours of the waterfall (from lineColors, so they stay apart for
-// colour-blind readers).
-var (
-	stepUpColor    = lineColors[0]
-	stepDownColor  = lineColors[1]
-	stepPointColor = lineColors[2]
-)
-
-// waterfall draws one chain of one model: the AUC on the first member as a
-// dot, one floating bar per step from the AUC before to the AUC after, and
-// the AUC on the last member as a dot. Row 0 is drawn at the top.
-type waterfall struct {
-	cs *ChainSummary
+// chainWaterfall draws one nested chain for every model: per model, the AUC
+// on the chain's first extent as a marker, one arrow per step from the AUC
+// before to the AUC after (solid for a ring of new background, dashed for
+// test records that first fall inside), and the AUC on the last extent as
+// a marker. Rows run from the top: start, one per step, end; within a row
+// each model has its own line. The numbers go in a column just right of
+// the data area.
+type chainWaterfall struct {
+	steps  []ChainStep // the steps of the first model (all share them)
+	models []int       // index of each model in the figure's model list
+	cs     []*ChainSummary
 }
 
-// rows returns the number of rows: start, one per step, end.
-func (w waterfall) rows() int { return len(w.cs.Steps) + 2 }
+// subRow is the height of one model's line within a row, in data units.
+const subRow = 1.0
 
-// y is the data coordinate of row i (row 0 at the top).
-func (w waterfall) y(i int) float64 { return float64(w.rows() - 1 - i) }
+// rows returns the number of rows: start, one per step, end.
+func (w chainWaterfall) rows() int { return len(w.steps) + 2 }
+
+// y returns the data coordinate of model k's line in row i (row 0 at the
+// top); rows are one model-line apart.
+func (w chainWaterfall) y(i, k int) float64 {
+	n := len(w.cs)
+	top := float64(w.rows()*(n+1)) - 1
+	return top - float64(i*(n+1)+k)
+}
+
+// rowCentre is the data coordinate of the middle of row i.
+func (w chainWaterfall) rowCentre(i int) float64 {
+	return (w.y(i, 0) + w.y(i, len(w.cs)-1)) / 2
+}
 
 // Plot implements plot.Plotter.
-func (w waterfall) Plot(c draw.Canvas, p *plot.Plot) {
+func (w chainWaterfall) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
 	sty := textStyle(minFontPt)
 	sty.YAlign = draw.YCenter
-	half := vg.Points(4)
-	label := func(xLeft, xRight, y vg.Length, s string) {
-		if xRight+vg.Points(3)+sty.Width(s) <= c.Max.X {
-			sty.XAlign = draw.XLeft
-			c.FillText(sty, vg.Point{X: xRight + vg.Points(3), Y: y}, s)
-			return
+	connector := lineStyle(color.Gray{Y: 120}, 0.5, []vg.Length{vg.Points(1), vg.Points(1.5)})
+	for k, cs := range w.cs {
+		mi := w.models[k]
+		col := modelColor(mi)
+		// Each number carries its model's marker.
+		label := func(y vg.Length, s string) {
+			wide := c // DrawGlyph skips points outside its canvas
+			wide.Max.X += vg.Points(20)
+			wide.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(2), Shape: modelGlyph(mi)}, vg.Point{X: c.Max.X + vg.Points(8), Y: y})
+			c.FillText(sty, vg.Point{X: c.Max.X + vg.Points(14), Y: y}, s)
 		}
-		sty.XAlign = draw.XRight
-		c.FillText(sty, vg.Point{X: xLeft - vg.Points(3), Y: y}, s)
-	}
-	dot := func(row int, v float64) {
-		x, y := trX(v), trY(w.y(row))
-		c.DrawGlyph(draw.GlyphStyle{Color: ink, Radius: vg.Points(2.6), Shape: draw.CircleGlyph{}}, vg.Point{X: x, Y: y})
-		label(x-vg.Points(2), x+vg.Points(2), y, f3(v))
-	}
-	connector := lineStyle(color.Gray{Y: 110}, 0.5, []vg.Length{vg.Points(1), vg.Points(1.5)})
-	dot(0, w.cs.StartAUC)
-	prev := w.cs.StartAUC
-	for i, st := range w.cs.Steps {
-		row := i + 1
-		y := trY(w.y(row))
-		yPrev := trY(w.y(row - 1))
-		c.StrokeLine2(connector, trX(prev), yPrev, trX(st.AUCInner), y)
-		x0, x1 := trX(math.Min(st.AUCInner, st.AUCOuter)), trX(math.Max(st.AUCInner, st.AUCOuter))
-		if x1-x0 < vg.Points(0.8) {
-			x1 = x0 + vg.Points(0.8)
+		mark := func(row int, v float64) {
+			pt := vg.Point{X: trX(v), Y: trY(w.y(row, k))}
+			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(2.4), Shape: modelGlyph(mi)}, pt)
+			label(pt.Y, "AUC "+f3(v))
 		}
-		fill := stepUpColor
-		switch {
-		case st.Kind != "ring":
-			fill = stepPointColor
-		case st.AUCOuter < st.AUCInner:
-			fill = stepDownColor
-		}
-		rect := vg.Rectangle{Min: vg.Point{X: x0, Y: y - half}, Max: vg.Point{X: x1, Y: y + half}}
-		c.SetColor(fill)
-		c.Fill(rect.Path())
-		c.StrokeLines(lineStyle(ink, 0.4, nil), []vg.Point{rect.Min, {X: rect.Max.X, Y: rect.Min.Y}, rect.Max, {X: rect.Min.X, Y: rect.Max.Y}, rect.Min})
-		text := "new test records"
-		if st.Kind == "ring" {
-			text = "ring AUC –"
-			if st.AUCRingDefined {
-				text = "ring AUC " + f3(st.AUCRing)
+		mark(0, cs.StartAUC)
+		prev, prevY := cs.StartAUC, trY(w.y(0, k))
+		for i, st := range cs.Steps {
+			y := trY(w.y(i+1, k))
+			c.StrokeLine2(connector, trX(prev), prevY, trX(st.AUCInner), y)
+			ls := lineStyle(col, 2.2, nil)
+			text := "new test records"
+			if st.Kind == "ring" {
+				text = "ring AUC –"
+				if st.AUCRingDefined {
+					text = "ring AUC " + f3(st.AUCRing)
+				}
+			} else {
+				ls = lineStyle(col, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})
 			}
+			drawArrow(c, ls, trX(st.AUCInner), trX(st.AUCOuter), y)
+			label(y, text)
+			prev, prevY = st.AUCOuter, y
 		}
-		label(x0, x1, y, text)
-		prev = st.AUCOuter
+		last := w.rows() - 1
+		y := trY(w.y(last, k))
+		c.StrokeLine2(connector, trX(prev), prevY, trX(cs.EndAUC), y)
+		mark(last, cs.EndAUC)
 	}
-	last := w.rows() - 1
-	c.StrokeLine2(connector, trX(prev), trY(w.y(last-1)), trX(w.cs.EndAUC), trY(w.y(last)))
-	dot(last, w.cs.EndAUC)
+}
+
+// drawArrow draws a horizontal arrow from x0 to x1 at height y; a step
+// too short for a head is drawn as a tick.
+func drawArrow(c draw.Canvas, ls draw.LineStyle, x0, x1, y vg.Length) {
+	head := vg.Points(4)
+	dir := vg.Length(1)
+	if x1 < x0 {
+		dir = -1
+	}
+	if (x1-x0)*dir < head {
+		c.StrokeLine2(lineStyle(ls.Color, 0.8, nil), x1, y-vg.Points(3), x1, y+vg.Points(3))
+		if x1 != x0 {
+			c.StrokeLine2(lineStyle(ls.Color, 1, nil), x0, y, x1, y)
+		}
+		return
+	}
+	c.StrokeLine2(ls, x0, y, x1-dir*head*0.8, y)
+	c.FillPolygon(ls.Color, []vg.Point{{X: x1, Y: y}, {X: x1 - dir*head, Y: y + vg.Points(2.6)}, {X: x1 - dir*head, Y: y - vg.Points(2.6)}})
 }
 
 // DataRange implements plot.DataRanger.
-func (w waterfall) DataRange() (xmin, xmax, ymin, ymax float64) {
-	xmin, xmax = math.Min(w.cs.StartAUC, w.cs.EndAUC), math.Max(w.cs.StartAUC, w.cs.EndAUC)
-	for _, st := range w.cs.Steps {
-		xmin = math.Min(xmin, math.Min(st.AUCInner, st.AUCOuter))
-		xmax = math.Max(xmax, math.Max(st.AUCInner, st.AUCOuter))
+func (w chainWaterfall) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax = math.Inf(1), math.Inf(-1)
+	for _, cs := range w.cs {
+		xmin, xmax = math.Min(xmin, math.Min(cs.StartAUC, cs.EndAUC)), math.Max(xmax, math.Max(cs.StartAUC, cs.EndAUC))
+		for _, st := range cs.Steps {
+			xmin = math.Min(xmin, math.Min(st.AUCInner, st.AUCOuter))
+			xmax = math.Max(xmax, math.Max(st.AUCInner, st.AUCOuter))
+		}
 	}
-	return xmin, xmax, -0.5, float64(w.rows()) - 0.5
+	return xmin, xmax, w.y(w.rows()-1, len(w.cs)-1) - 1, w.y(0, 0) + 1
 }
 
-// rowLabels names the rows of a chain's waterfall, top to bottom.
-func (w waterfall) rowLabels() []string {
-	ls := []string{w.cs.Members[0]}
-	for _, st := range w.cs.Steps {
+// rowLabels names the rows, top to bottom.
+func (w chainWaterfall) rowLabels(first, last string) []string {
+	ls := []string{first}
+	for _, st := range w.steps {
 		if st.Kind == "ring" {
 			ls = append(ls, "ring to "+st.Outer)
 		} else {
 			ls = append(ls, "test records of "+st.Outer)
 		}
 	}
-	return append(ls, w.cs.Members[len(w.cs.Members)-1])
+	return append(ls, last)
 }
 
 // ringsNote says how to read the waterfall, in particular a negative step.
-const ringsNote = "How to read a step: each bar moves the AUC from one extent of the chain to the next larger one. " +
-	"The new ring has its own AUC (printed beside the bar); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
-	"A step to the left (negative) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records. " +
+const ringsNote = "How to read a step: each arrow moves the AUC from one extent of the chain to the next larger one. " +
+	"The new ring has its own AUC (in the column on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
+	"An arrow pointing left (a negative step) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records. " +
 	"The steps add up to the change from the first to the last extent, so when steps go both ways one step can exceed the whole change (a share above 100%) while another is negative."
 
-// ringsFigure draws one waterfall per chain and model.
-func ringsFigure(r *Results) (figure, bool) {
-	s := r.Sensitivity
-	var chains []string
-	seen := map[string]bool{}
-	maxRows := 0
+// sameSteps reports whether two chain summaries have the same steps.
+func sameSteps(a, b []ChainStep) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i].Kind != b[i].Kind || a[i].Inner != b[i].Inner || a[i].Outer != b[i].Outer {
+			return false
+		}
+	}
+	return true
+}
+
+// waterfallPanels groups the chain summaries into panels: one per chain,
+// with every model whose steps match the chain's first model (a model
+// with other steps gets its own panel).
+func waterfallPanels(s *Sensitivity) []chainWaterfall {
+	modelIndex := map[string]int{}
+	for i, m := range s.ModelNames {
+		modelIndex[m] = i
+	}
+	var ws []chainWaterfall
 	for i := range s.Chains {
 		c := &s.Chains[i]
 		if len(c.Members) < 2 {
 			continue
 		}
-		if !seen[c.Chain] {
-			seen[c.Chain] = true
-			chains = append(chains, c.Chain)
+		placed := false
+		for q := range ws {
+			if ws[q].cs[0].Chain == c.Chain && sameSteps(ws[q].steps, c.Steps) {
+				ws[q].cs = append(ws[q].cs, c)
+				ws[q].models = append(ws[q].models, modelIndex[c.Model])
+				placed = true
+				break
+			}
 		}
-		maxRows = max(maxRows, len(c.Steps)+2)
+		if !placed {
+			ws = append(ws, chainWaterfall{steps: c.Steps, cs: []*ChainSummary{c}, models: []int{modelIndex[c.Model]}})
+		}
 	}
-	if len(chains) == 0 {
+	return ws
+}
+
+// ringsFigure draws one waterfall panel per nested chain.
+func ringsFigure(r *Results) (figure, bool) {
+	s := r.Sensitivity
+	panels := waterfallPanels(s)
+	if len(panels) == 0 {
 		return figure{}, false
 	}
-	models := s.ModelNames
-	cols := max(1, min(len(models), 3))
 	f := figure{Name: "ring_steps", Title: "AUC step by step along each nested chain", W: twoColumns, Note: ringsNote}
-	items := []legendItem{
-		{"ring raises AUC", boxThumb{fill: stepUpColor}},
-		{"ring lowers AUC", boxThumb{fill: stepDownColor}},
-		{"test records that enter with the extent", boxThumb{fill: stepPointColor}},
-		{"AUC on the first and last extent", glyphThumb{gs: draw.GlyphStyle{Color: ink, Radius: vg.Points(2.6), Shape: draw.CircleGlyph{}}}},
+	var items []legendItem
+	for i, m := range s.ModelNames {
+		ls := lineStyle(modelColor(i), 2.2, nil)
+		items = append(items, legendItem{"model " + m, glyphThumb{gs: draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)}, line: &ls}})
 	}
+	items = append(items,
+		legendItem{"ring of new background", lineThumb{lineStyle(ink, 2.2, nil)}},
+		legendItem{"test records that first fall inside", lineThumb{lineStyle(ink, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})}})
 	legend := legendRows(items, f.W)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
 	note := wrapText(f.Note, minFontPt, f.W-vg.Points(8))
 	noteH := textStyle(minFontPt).Height(note) + vg.Points(6)
-	panelH := vg.Length(maxRows)*vg.Points(12) + vg.Points(52)
-	type row struct {
-		chain  string
-		panels []*ChainSummary
+	labelW := vg.Length(0)
+	for _, s := range []string{"ring AUC 0.000", "new test records", "AUC 0.000"} {
+		labelW = max(labelW, textWidth(s, minFontPt))
 	}
-	var rows []row
-	for _, ch := range chains {
-		for start := 0; start < len(models); start += cols {
-			rw := row{chain: ch, panels: make([]*ChainSummary, cols)}
-			for k := 0; k < cols && start+k < len(models); k++ {
-				for q := range s.Chains {
-					c := &s.Chains[q]
-					if c.Chain == ch && c.Model == models[start+k] && len(c.Members) >= 2 {
-						rw.panels[k] = c
-					}
-				}
-			}
-			rows = append(rows, rw)
-		}
+	labelW += vg.Points(18)
+	// Panel heights follow their number of lines: 9 pt per model line,
+	// plus title and axis.
+	heights := make([]vg.Length, len(panels))
+	total := vg.Length(0)
+	for i, w := range panels {
+		heights[i] = vg.Length(w.rows()*(len(w.cs)+1))*vg.Points(8.5) + vg.Points(48)
+		total += heights[i]
 	}
-	f.H = min(maxHeight, legendH+noteH+vg.Length(len(rows))*panelH)
-	f.Caption = "Waterfall of the AUC along each nested chain, one panel per chain and model: the dot at the top is the AUC on the chain's smallest extent, " +
-		"each bar one step to the next larger extent (a ring of new background, or test records that first fall inside), the dot at the bottom the AUC on the largest extent. " +
-		"All AUCs use the test records inside each extent."
-	panelW := f.W / vg.Length(cols)
-	// Widest row name and widest label beside a bar, for the x ranges.
-	var rowLabelW, labelW vg.Length
-	for _, rw := range rows {
-		for _, cs := range rw.panels {
-			if cs == nil {
-				continue
-			}
-			for _, l := range (waterfall{cs: cs}).rowLabels() {
-				rowLabelW = max(rowLabelW, textWidth(l, minFontPt))
-			}
-		}
-	}
-	labelW = max(textWidth("ring AUC 0.000", minFontPt), textWidth("new test records", minFontPt))
+	f.H = min(maxHeight, legendH+noteH+total+vg.Points(3))
+	scale := (f.H - legendH - noteH - vg.Points(3)) / total
+	f.Caption = "Waterfall of the AUC along each nested chain, one panel per chain, one line per model: the marker at the top is the AUC on the chain's smallest extent, " +
+		"each arrow one step to the next larger extent (solid: a ring of new background; dashed: test records that first fall inside), the marker at the bottom the AUC on the largest extent. " +
+		"All AUCs use the test records inside each extent; there is no bar of uncertainty."
 	f.draw = func(dc draw.Canvas) error {
 		noteC, rest := splitBottom(dc, noteH)
 		sty := textStyle(minFontPt)
@@ -196,51 +227,61 @@ func ringsFigure(r *Results) (figure, bool) {
 		noteC.FillText(sty, vg.Point{X: noteC.Min.X + vg.Points(4), Y: noteC.Max.Y - vg.Points(2)}, note)
 		legC, rest := splitBottom(rest, legendH)
 		drawLegendRows(legC, legend)
-		plots := make([][]*plot.Plot, len(rows))
-		for j, rw := range rows {
-			plots[j] = make([]*plot.Plot, cols)
-			for k, cs := range rw.panels {
-				if cs == nil {
-					continue
-				}
-				wf := waterfall{cs: cs}
-				p := newPlot(fmt.Sprintf("chain %s, model %s", cs.Chain, cs.Model), panelW-vg.Points(20))
-				p.Add(wf)
-				names := wf.rowLabels()
-				for a, b := 0, len(names)-1; a < b; a, b = a+1, b-1 {
-					names[a], names[b] = names[b], names[a]
-				}
-				p.NominalY(names...) // NominalY counts from the bottom
-				if k > 0 {
-					// Rows are named once per chain, in the first column.
-					var ts []plot.Tick
-					for i := range wf.rows() {
-						ts = append(ts, plot.Tick{Value: float64(i)})
+		plots := make([]*plot.Plot, len(panels))
+		canv := make([]draw.Canvas, len(panels))
+		y := rest.Max.Y - vg.Points(3) // glyphs of the top title reach above its box
+		left := vg.Length(0)
+		for i, w := range panels {
+			title := "nested chain " + w.cs[0].Chain
+			if len(w.cs) < len(s.ModelNames) {
+				title += ", model"
+				for q, c := range w.cs {
+					if q > 0 {
+						title += ","
 					}
-					p.Y.Tick.Marker = plot.ConstantTicks(ts)
+					title += " " + c.Model
 				}
-				xmin, xmax, _, _ := wf.DataRange()
-				if xmax-xmin < 0.02 {
-					mid := (xmin + xmax) / 2
-					xmin, xmax = mid-0.01, mid+0.01
-				}
-				// Room on the right for the labels beside the bars.
-				dataW := panelW - vg.Points(24)
-				if k == 0 {
-					dataW -= rowLabelW
-				}
-				frac := math.Min(0.6, float64(labelW+vg.Points(6))/float64(dataW))
-				lo := xmin - 0.04*(xmax-xmin)
-				hi := lo + (xmax-lo)/(1-frac)
-				step, _ := niceStepN(lo, hi, 4)
-				p.X.Min, p.X.Max = math.Floor(lo/step+1e-9)*step, math.Ceil(hi/step-1e-9)*step
-				p.X.Tick.Marker = niceTicks{N: 4}
-				p.X.Label.Text = "AUC"
-				p.Y.Min, p.Y.Max = -0.5, float64(wf.rows())-0.5
-				plots[j][k] = p
 			}
+			p := newPlot(title, f.W-labelW)
+			p.Add(w)
+			names := w.rowLabels(w.cs[0].Members[0], w.cs[0].Members[len(w.cs[0].Members)-1])
+			var ts []plot.Tick
+			for q, n := range names {
+				ts = append(ts, plot.Tick{Value: w.rowCentre(q), Label: n})
+			}
+			p.Y.Tick.Marker = plot.ConstantTicks(ts)
+			p.Y.Tick.Length = 0
+			p.Y.LineStyle.Width = 0
+			xmin, xmax, ymin, ymax := w.DataRange()
+			if xmax-xmin < 0.02 {
+				mid := (xmin + xmax) / 2
+				xmin, xmax = mid-0.01, mid+0.01
+			}
+			pad := 0.06 * (xmax - xmin)
+			step, _ := niceStepN(xmin-pad, xmax+pad, 5)
+			p.X.Min = math.Max(0, math.Floor((xmin-pad)/step+1e-9)*step)
+			p.X.Max = math.Min(1, math.Ceil((xmax+pad)/step-1e-9)*step)
+			p.X.Tick.Marker = niceTicks{N: 5}
+			p.X.Label.Text = "AUC"
+			p.Y.Min, p.Y.Max = ymin, ymax
+			c := rest
+			c.Max.Y = y
+			c.Min.Y = y - heights[i]*scale
+			c.Max.X -= labelW
+			c.Min.X += vg.Points(2)
+			y = c.Min.Y
+			c.Min.Y += vg.Points(6) // a gap above the next panel's title
+			da := p.DataCanvas(c)
+			left = max(left, da.Min.X-c.Min.X)
+			plots[i], canv[i] = p, c
 		}
-		drawTiles(plots, rest)
+		// Align the data areas' left edges.
+		for i, p := range plots {
+			c := canv[i]
+			da := p.DataCanvas(c)
+			c.Min.X += left - (da.Min.X - c.Min.X)
+			p.Draw(c)
+		}
 		return nil
 	}
 	return f, true

@@ -507,3 +507,36 @@ func TestMapPanels(t *testing.T) {
 		t.Errorf("14 members split into %d parts holding %d", len(parts), len(all))
 	}
 }
+
+// TestWaterfallPanels checks that every chain summary with at least two
+// members is drawn exactly once, that a panel only holds models with the
+// same steps, and that the page prints how to read a negative step.
+func TestWaterfallPanels(t *testing.T) {
+	dir, r := writeSample(t)
+	s := r.Sensitivity
+	seen := map[*ChainSummary]int{}
+	for _, w := range waterfallPanels(s) {
+		for k, c := range w.cs {
+			seen[c]++
+			if !sameSteps(w.steps, c.Steps) || c.Chain != w.cs[0].Chain {
+				t.Errorf("panel of chain %s holds %s/%s with other steps", w.cs[0].Chain, c.Chain, c.Model)
+			}
+			if s.ModelNames[w.models[k]] != c.Model {
+				t.Errorf("model index %d is not %s", w.models[k], c.Model)
+			}
+		}
+	}
+	for i := range s.Chains {
+		c := &s.Chains[i]
+		if want := map[bool]int{true: 1, false: 0}[len(c.Members) >= 2]; seen[c] != want {
+			t.Errorf("chain %s, model %s drawn %d times, want %d", c.Chain, c.Model, seen[c], want)
+		}
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), htmlEscape(ringsNote)) {
+		t.Error("the page lacks the sentence on reading a negative step")
+	}
+}
