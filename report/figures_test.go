@@ -540,3 +540,61 @@ func TestWaterfallPanels(t *testing.T) {
 		t.Error("the page lacks the sentence on reading a negative step")
 	}
 }
+
+// TestFigureEdgeCases draws every figure (SVG) for runs cut down from the
+// sample: one model, nothing scored, no map preview, a flat chain. Each
+// must render, keep its text inside the drawing and its tick labels
+// consistent with their positions.
+func TestFigureEdgeCases(t *testing.T) {
+	cases := []struct {
+		name  string
+		build func(r *Results)
+	}{
+		{"one model", func(r *Results) {
+			r.Models = r.Models[:1]
+			var sc []Score
+			for _, s := range r.Scores {
+				if s.Model == r.Models[0].Name {
+					sc = append(sc, s)
+				}
+			}
+			r.Scores = sc
+		}},
+		{"nothing scored", func(r *Results) {
+			for i := range r.Scores {
+				r.Scores[i].Scored = false
+			}
+		}},
+		{"no preview", func(r *Results) { r.Preview = nil }},
+		{"flat chain", func(r *Results) {
+			for i := range r.Rings {
+				r.Rings[i].AUCInner, r.Rings[i].AUCRing, r.Rings[i].AUCOuter = 0.8, 0.8, 0.8
+			}
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			c.build(r)
+			if err := Analyze(r); err != nil {
+				t.Fatal(err)
+			}
+			for _, f := range figures(r) {
+				svg, err := render(f, "svg")
+				if err != nil {
+					t.Fatalf("%s: %v", f.Name, err)
+				}
+				probs, _ := checkAxisLabels(t, f.Name, svg)
+				for _, p := range probs {
+					t.Error(p)
+				}
+				texts, _ := parseSVG(t, svg)
+				for _, tx := range texts {
+					if math.IsNaN(tx.x) || math.IsNaN(tx.y) || tx.x < 0 || tx.x+tx.width() > f.W.Points()+0.5 || tx.y-0.22*tx.size < -0.5 || tx.y+0.76*tx.size > f.H.Points()+0.5 {
+						t.Errorf("%s: %q at (%.1f, %.1f) outside the drawing", f.Name, tx.s, tx.x, tx.y)
+					}
+				}
+			}
+		})
+	}
+}
