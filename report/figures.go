@@ -2,7 +2,10 @@ package report
 
 import (
 	"bytes"
+	"encoding/binary"
 	"fmt"
+	"hash/crc32"
+	"math"
 	"image/color"
 	"os"
 	"path/filepath"
@@ -118,10 +121,35 @@ func render(f figure, format string) ([]byte, error) {
 	if _, err := c.WriteTo(&buf); err != nil {
 		return nil, fmt.Errorf("report: figure %s: write %s: %w", f.Name, strings.ToUpper(format), err)
 	}
-	if format == "svg" {
+	switch format {
+	case "svg":
 		return fixSVG(buf.Bytes()), nil
+	case "png":
+		return withPNGResolution(buf.Bytes(), pngDPI)
 	}
 	return buf.Bytes(), nil
+}
+
+// withPNGResolution adds a pHYs chunk after the header of a PNG stream,
+// so that programs that read the resolution see dpi (PNG specification,
+// section 11.3.5.3: pixels per metre, unit byte 1). gonum writes none.
+func withPNGResolution(data []byte, dpi int) ([]byte, error) {
+	const sig, ihdr = 8, 8 + 13 + 4 // signature; IHDR length, type, data, CRC
+	if len(data) < sig+ihdr || string(data[12:16]) != "IHDR" {
+		return nil, fmt.Errorf("report: PNG without a header")
+	}
+	ppm := uint32(math.Round(float64(dpi) / 0.0254))
+	chunk := make([]byte, 4+4+9+4)
+	binary.BigEndian.PutUint32(chunk[0:], 9)
+	copy(chunk[4:], "pHYs")
+	binary.BigEndian.PutUint32(chunk[8:], ppm)
+	binary.BigEndian.PutUint32(chunk[12:], ppm)
+	chunk[16] = 1
+	binary.BigEndian.PutUint32(chunk[17:], crc32.ChecksumIEEE(chunk[4:17]))
+	out := make([]byte, 0, len(data)+len(chunk))
+	out = append(out, data[:sig+ihdr]...)
+	out = append(out, chunk...)
+	return append(out, data[sig+ihdr:]...), nil
 }
 
 // inlineSVG prepares an SVG document for inlining in HTML: drops the XML

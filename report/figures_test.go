@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"encoding/binary"
 	"fmt"
 	"html"
 	"image/png"
@@ -414,6 +415,12 @@ func TestFigurePrintSizes(t *testing.T) {
 		}
 		if want := w / 72 * pngDPI; math.Abs(float64(cfg.Width)-want) > 1 {
 			t.Errorf("%s.png: %d px wide, want %.0f (300 dpi)", name, cfg.Width, want)
+		}
+		// The resolution is recorded: pHYs with 11811 pixels per metre
+		// (300 / 0.0254, rounded; PNG specification 11.3.5.3).
+		phys := bytes.Index(data, []byte("pHYs"))
+		if phys < 0 || len(data) < phys+13 || binary.BigEndian.Uint32(data[phys+4:]) != 11811 || binary.BigEndian.Uint32(data[phys+8:]) != 11811 || data[phys+12] != 1 {
+			t.Errorf("%s.png: no pHYs chunk of 300 dpi", name)
 		}
 		pdf, err := os.ReadFile(filepath.Join(dir, "figures", name+".pdf"))
 		if err != nil {
