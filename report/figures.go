@@ -9,6 +9,7 @@ import (
 	"image/color"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"time"
@@ -57,27 +58,44 @@ type renderedFigure struct {
 	svg []byte
 }
 
-// writeFigures renders every figure as SVG, PDF and PNG into figDir.
+// writeFigures renders every figure as SVG, PDF and PNG into figDir. The
+// renderings run in parallel (each on its own canvas) and are written in a
+// fixed order afterwards, so the files do not depend on the schedule.
 func writeFigures(figDir string, r *Results) ([]renderedFigure, error) {
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
 		return nil, fmt.Errorf("report: create %s: %w", figDir, err)
 	}
+	fs := figures(r)
+	n := len(fs) * len(figureFormats)
+	data := make([][]byte, n)
+	errs := make([]error, n)
+	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
+	var wg sync.WaitGroup
+	for i := range n {
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer func() { <-sem; wg.Done() }()
+			data[i], errs[i] = render(fs[i/len(figureFormats)], figureFormats[i%len(figureFormats)])
+		}()
+	}
+	wg.Wait()
 	var out []renderedFigure
-	for _, f := range figures(r) {
-		var svg []byte
-		for _, format := range figureFormats {
-			data, err := render(f, format)
-			if err != nil {
-				return nil, err
+	for k, f := range fs {
+		rf := renderedFigure{fig: f}
+		for j, format := range figureFormats {
+			i := k*len(figureFormats) + j
+			if errs[i] != nil {
+				return nil, errs[i]
 			}
-			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data); err != nil {
+			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data[i]); err != nil {
 				return nil, err
 			}
 			if format == "svg" {
-				svg = data
+				rf.svg = data[i]
 			}
 		}
-		out = append(out, renderedFigure{fig: f, svg: svg})
+		out = append(out, rf)
 	}
 	return out, nil
 }
