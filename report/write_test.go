@@ -274,3 +274,63 @@ func BenchmarkWrite_3models10extents(b *testing.B) {
 		}
 	}
 }
+
+// TestThresholdTable checks the long threshold-test table: its spelled-out
+// headers, one row per scored model, extent and rule, "k of n" matching
+// the results (missed = n - successes), and that no page, methods text or
+// figure shortens "partial ROC".
+func TestThresholdTable(t *testing.T) {
+	dir, r := writeSample(t)
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	html := string(page)
+	tbl := regexp.MustCompile(`(?s)<table class="sortable" id="tbl-thresholds">(.*?)</table>`).FindStringSubmatch(html)
+	if tbl == nil {
+		t.Fatal("no threshold tests table")
+	}
+	for _, h := range []string{"rule", "cut value", "test records missed (k of n)", "share of the extent at or above the cut", "one-sided binomial P"} {
+		if !strings.Contains(tbl[1], `<th scope="col">`+h+`</th>`) {
+			t.Errorf("threshold table lacks header %q", h)
+		}
+	}
+	rows := regexp.MustCompile(`(?s)<tr><td>([^<]*)</td><td>([^<]*)</td><td>([^<]*)</td><td[^>]*>[^<]*</td><td[^>]*>(\d+) of (\d+)</td>`).FindAllStringSubmatch(tbl[1], -1)
+	want := 0
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, th := range sc.Thresholds {
+			want++
+			found := false
+			for _, row := range rows {
+				if row[1] == sc.Model && row[2] == sc.Extent && row[3] == ruleName(th) {
+					found = true
+					if row[4] != strconv.Itoa(th.N-th.Successes) || row[5] != strconv.Itoa(th.N) {
+						t.Errorf("%s on %s, %s: %s of %s, want %d of %d", sc.Model, sc.Extent, row[3], row[4], row[5], th.N-th.Successes, th.N)
+					}
+				}
+			}
+			if !found {
+				t.Errorf("no row for %s on %s, %s", sc.Model, sc.Extent, ruleName(th))
+			}
+		}
+	}
+	if len(rows) != want || want == 0 {
+		t.Errorf("%d threshold rows, want %d", len(rows), want)
+	}
+	files := []string{"report.html", "methods.md"}
+	for _, f := range figureNames {
+		files = append(files, filepath.Join("figures", f+".svg"))
+	}
+	for _, f := range files {
+		data, err := os.ReadFile(filepath.Join(dir, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if m := regexp.MustCompile(`(?i)\bp\s?roc\b`).Find(data); m != nil {
+			t.Errorf("%s shortens partial ROC to %q", f, m)
+		}
+	}
+}
