@@ -262,7 +262,11 @@ func mapFigure(r *Results) (figure, bool) {
 		shared = append(shared, legendItem{l.label, glyphThumb{gs: l.gs}})
 	}
 	sharedRows := legendRows(shared, f.W/2)
-	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, 30*vg.Millimeter) + vg.Points(4)
+	keyH := 16 * vg.Millimeter // colour bar
+	if r.Grid.Geographic {
+		keyH = 30 * vg.Millimeter // colour bar, scale bar and north arrow
+	}
+	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, keyH) + vg.Points(4)
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
 	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together), each outline in its own colour and dash. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+

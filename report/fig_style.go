@@ -306,7 +306,9 @@ func (t glyphThumb) Thumbnail(c *draw.Canvas) {
 		y := c.Center().Y
 		c.StrokeLine2(*t.line, c.Min.X, y, c.Max.X, y)
 	}
-	c.DrawGlyph(t.gs, c.Center())
+	gs := t.gs
+	gs.Radius = min(gs.Radius, vg.Points(4.5)) // stay within the legend row
+	c.DrawGlyph(gs, c.Center())
 }
 
 // boxThumb is a legend thumbnail of a filled box.
