@@ -99,6 +99,9 @@ func rocFigure(r *Results) figure {
 			p := newPlot("model "+model, panelW-vg.Points(30))
 			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 			p.X.Label.Text = "share of extent predicted present"
+			if cols >= 3 {
+				p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
+			}
 			p.Y.Label.Text = "share of test records"
 			if e > 0 {
 				poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
