@@ -92,16 +92,6 @@ var ink = color.RGBA{26, 26, 26, 255}
 
 var colorWhite = color.RGBA{255, 255, 255, 255}
 
-// colorHex writes c as a CSS hex colour.
-func colorHex(c color.RGBA) string {
-	const hexdigits = "0123456789abcdef"
-	b := []byte{'#', 0, 0, 0, 0, 0, 0}
-	for i, v := range []uint8{c.R, c.G, c.B} {
-		b[1+2*i], b[2+2*i] = hexdigits[v>>4], hexdigits[v&15]
-	}
-	return string(b)
-}
-
 // dashes are distinct line patterns so that lines stay apart in greyscale.
 var dashes = [][]vg.Length{
 	nil,
