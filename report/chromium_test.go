@@ -222,6 +222,7 @@ func TestReportInChromium(t *testing.T) {
 
 	for _, width := range []int{1400, 800} {
 		t.Run(strconv.Itoa(width)+"px", func(t *testing.T) {
+			t.Parallel() // two browsers at once: each has its own profile folder
 			shot := filepath.Join(t.TempDir(), "screenshot.png")
 			dom, logs := runChromium(t, bin, chromiumArgs(t.TempDir(), "--enable-logging=stderr", "--v=1", "--hide-scrollbars",
 				"--window-size="+strconv.Itoa(width)+",1600", "--virtual-time-budget=5000", "--screenshot="+shot, "--dump-dom", page))
