@@ -432,6 +432,7 @@ func writeExtentTables(p *page, r *Results) {
 		rows = append(rows, []cell{tc(e.ID), tc(e.Kind), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
 			areaCell(e.AreaKm2), nc(e.ShareOfRaster, 3), ic(e.TrainPoints), ic(e.TestPoints), tc(status)})
 	}
+	p.s(`<p>One row per extent of the family: its cells and true area among the cells where the first model has data, its share of the raster's valid area, and the training and test records inside it. Extents with status empty, or duplicate of an earlier one, are left out of the analysis.</p>`)
 	p.table("tbl-extents", "", []string{"id", "kind", "parameters", "nested chain", "cells", "area (km²)", "share of the raster", "training records inside", "test records inside", "status"}, rows)
 	if len(s.SkippedExtents) > 0 {
 		p.s("<h3>Left out of the analysis</h3><ul>")
