@@ -398,7 +398,7 @@ func writeScoreTables(p *page, r *Results) {
 	p.table("tbl-partial-roc", "", head, rows)
 
 	p.s(`<h3 id="scores-thresholds">Threshold tests</h3>`)
-	p.s(`<p>One row per model, extent and rule. The cut comes from the training records (or is fixed), so it is the same on every extent; the test records are those inside the extent. Missed: test records below the cut. One-sided binomial P: the chance of at least as many test records at or above the cut if they fell at random on the extent, each with probability equal to the share of the extent at or above the cut. That share, and so P, changes with the extent; the count missed does not change with the background.</p>`)
+	p.s(`<p>One row per model, extent and rule. The cut comes from the training records (or is fixed), so it is the same on every extent; the test records are those inside the extent. Missed: test records below the cut. One-sided binomial P: the chance of at least as many test records at or above the cut if they fell at random on the extent, each with probability equal to the share of the extent at or above the cut. That share, and so P, changes with the extent; the share missed changes only when an extent leaves test records out.</p>`)
 	head = []string{"model", "extent", "rule", "cut value", "test records missed (k of n)", "share missed", "share of the extent at or above the cut", "one-sided binomial P"}
 	rows = nil
 	for _, sc := range r.Scores {
