@@ -426,6 +426,10 @@ func TestFigurePrintSizes(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		// Journals ask for embedded fonts (common practice).
+		if !bytes.Contains(pdf, []byte("/FontFile")) {
+			t.Errorf("%s.pdf: fonts not embedded", name)
+		}
 		box := regexp.MustCompile(`/MediaBox \[0 0 ([0-9.]+) ([0-9.]+)\]`).FindSubmatch(pdf)
 		if box == nil || math.Abs(atof(t, string(box[1]))-w) > 0.01 || math.Abs(atof(t, string(box[2]))-h) > 0.01 {
 			t.Errorf("%s.pdf: page box %q, want %.2f x %.2f pt", name, box, w, h)
