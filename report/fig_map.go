@@ -218,6 +218,118 @@ func mapPoints(r *Results, model string) mapMarks {
 	}}
 }
 
+// mapScene holds what every map panel shares: the preview as an image,
+// the extent masks, the bounds and aspect, and the point layers.
+type mapScene struct {
+	r                        *Results
+	img                      *image.RGBA
+	masks                    [][]bool
+	west, south, east, north float64
+	aspect                   float64 // km per unit in x over km per unit in y
+	marks                    mapMarks
+}
+
+// outlineStyle is the k-th outline of a panel.
+func outlineStyle(k int) draw.LineStyle {
+	return lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])
+}
+
+// newMapScene decodes the preview.
+func newMapScene(r *Results, model string) (*mapScene, error) {
+	pv := r.Preview
+	vals, masks, err := decodePreview(pv)
+	if err != nil {
+		return nil, err
+	}
+	img := image.NewRGBA(image.Rect(0, 0, pv.Width, pv.Height))
+	for i, v := range vals {
+		c := noDataColor
+		if v != 255 {
+			c = suitabilityRamp(float64(v) / 254)
+		}
+		img.Set(i%pv.Width, i/pv.Width, c)
+	}
+	m := &mapScene{r: r, img: img, masks: masks, aspect: 1, marks: mapPoints(r, model)}
+	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
+	if r.Grid.Geographic {
+		m.aspect = math.Cos((m.north + m.south) / 2 * math.Pi / 180)
+	}
+	return m, nil
+}
+
+// outlines returns the outline of every extent of group g, in the grid CRS.
+func (m *mapScene) outlines(g mapGroup) ([]*outline, []legendItem) {
+	w, h := m.r.Preview.Width, m.r.Preview.Height
+	cw, ch := (m.east-m.west)/float64(w), (m.north-m.south)/float64(h)
+	var os []*outline
+	var items []legendItem
+	for k, ei := range g.members {
+		if ei >= len(m.masks) {
+			continue
+		}
+		segs := maskEdges(m.masks[ei], w, h)
+		for q := range segs {
+			segs[q] = [4]float64{m.west + segs[q][0]*cw, m.north - segs[q][1]*ch, m.west + segs[q][2]*cw, m.north - segs[q][3]*ch}
+		}
+		o := &outline{segs: segs, ls: outlineStyle(k)}
+		os = append(os, o)
+		items = append(items, legendItem{m.r.Extents[ei].ID, lineThumb{o.ls}})
+	}
+	return os, items
+}
+
+// addMarks adds the point layers to p, each over a white halo where asked.
+func (m *mapScene) addMarks(p *plot.Plot) error {
+	for _, l := range m.marks.layers {
+		if len(l.xys) == 0 {
+			continue
+		}
+		styles := []draw.GlyphStyle{l.gs}
+		if l.halo {
+			styles = []draw.GlyphStyle{haloOf(l.gs), l.gs}
+		}
+		for _, gs := range styles {
+			sc, err := plotter.NewScatter(l.xys)
+			if err != nil {
+				return fmt.Errorf("report: figure map: %w", err)
+			}
+			sc.GlyphStyle = gs
+			p.Add(sc)
+		}
+	}
+	return nil
+}
+
+// panel draws group g in cell: the map with its outline legend below. It
+// returns the map's scale in km per point (0 off geographic grids).
+func (m *mapScene) panel(g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
+	legC, mapC := splitBottom(cell, legendH)
+	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
+	p.Add(plotter.NewImage(m.img, m.west, m.south, m.east, m.north))
+	if m.r.Grid.Geographic {
+		p.X.Tick.Marker = degreeTicks{Lon: true}
+		p.Y.Tick.Marker = degreeTicks{}
+	} else {
+		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
+	}
+	os, items := m.outlines(g)
+	for _, o := range os {
+		p.Add(o)
+	}
+	if err := m.addMarks(p); err != nil {
+		return 0, err
+	}
+	fitAspect(p, mapC, m.west, m.south, m.east, m.north, m.aspect)
+	p.Draw(mapC)
+	da := p.DataCanvas(mapC)
+	legC.Min.X = da.Min.X
+	drawLegendRows(legC, legendRows(items, legC.Max.X-legC.Min.X))
+	if !m.r.Grid.Geographic {
+		return 0, nil
+	}
+	return (p.X.Max - p.X.Min) * m.aspect * KmPerDegree / float64(da.Max.X-da.Min.X), nil
+}
+
 // mapFigure draws the extents as small multiples: one panel per nested
 // chain over the first model's suitability, with the points.
 func mapFigure(r *Results) (figure, bool) {
@@ -237,28 +349,26 @@ func mapFigure(r *Results) (figure, bool) {
 		f.W = oneColumn
 	}
 	west, south, east, north := pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
-	aspect := 1.0 // km per unit in x over km per unit in y
+	aspect := 1.0
 	if r.Grid.Geographic {
 		aspect = math.Cos((north + south) / 2 * math.Pi / 180)
 	}
-	cellW := f.W / vg.Length(cols)
 	// Each panel: title, map (aspect kept), its outline legend.
+	cellW := f.W / vg.Length(cols)
 	dataW := cellW - vg.Points(44)
 	legendRowsMax := 1
 	for _, g := range groups {
 		var items []legendItem
 		for k, ei := range g.members {
-			items = append(items, legendItem{r.Extents[ei].ID, lineThumb{lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])}})
+			items = append(items, legendItem{r.Extents[ei].ID, lineThumb{outlineStyle(k)}})
 		}
 		legendRowsMax = max(legendRowsMax, len(legendRows(items, dataW)))
 	}
 	legendH := vg.Length(legendRowsMax)*legendRowHeight + vg.Points(4)
-	dataH := dataW * vg.Length((north-south)/((east-west)*aspect))
-	dataH = min(dataH, 100*vg.Millimeter)
+	dataH := min(dataW*vg.Length((north-south)/((east-west)*aspect)), 100*vg.Millimeter)
 	cellH := dataH + vg.Points(42) + legendH
-	marks := mapPoints(r, model)
 	var shared []legendItem
-	for _, l := range marks.layers {
+	for _, l := range mapPoints(r, model).layers {
 		shared = append(shared, legendItem{l.label, glyphThumb{gs: l.gs}})
 	}
 	sharedRows := legendRows(shared, f.W/2)
@@ -276,80 +386,22 @@ func mapFigure(r *Results) (figure, bool) {
 		f.Caption += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
 	}
 	f.draw = func(dc draw.Canvas) error {
-		vals, masks, err := decodePreview(pv)
+		m, err := newMapScene(r, model)
 		if err != nil {
 			return err
 		}
-		w, h := pv.Width, pv.Height
-		img := image.NewRGBA(image.Rect(0, 0, w, h))
-		for i, v := range vals {
-			c := noDataColor
-			if v != 255 {
-				c = suitabilityRamp(float64(v) / 254)
-			}
-			img.Set(i%w, i/w, c)
-		}
 		bottom, rest := splitBottom(dc, bottomH)
 		rest.Max.Y -= vg.Points(2)
-		cw, ch := (east-west)/float64(w), (north-south)/float64(h)
-		var scaleKmPerPt float64
+		var kmPerPt float64
 		for gi, g := range groups {
-			col, row := gi%cols, gi/cols
 			cell := rest
-			cell.Min.X = rest.Min.X + vg.Length(col)*cellW
+			cell.Min.X = rest.Min.X + vg.Length(gi%cols)*cellW
 			cell.Max.X = cell.Min.X + cellW
-			cell.Max.Y = rest.Max.Y - vg.Length(row)*cellH
+			cell.Max.Y = rest.Max.Y - vg.Length(gi/cols)*cellH
 			cell.Min.Y = cell.Max.Y - cellH
-			legC, mapC := splitBottom(cell, legendH)
-			p := newPlot(g.title, cellW-vg.Points(20))
-			p.Add(plotter.NewImage(img, west, south, east, north))
-			if r.Grid.Geographic {
-				p.X.Tick.Marker = degreeTicks{Lon: true}
-				p.Y.Tick.Marker = degreeTicks{}
-			} else {
-				p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
+			if kmPerPt, err = m.panel(g, cell, legendH); err != nil {
+				return err
 			}
-			var items []legendItem
-			for k, ei := range g.members {
-				if ei >= len(masks) {
-					continue
-				}
-				segs := maskEdges(masks[ei], w, h)
-				for q := range segs {
-					segs[q] = [4]float64{west + segs[q][0]*cw, north - segs[q][1]*ch, west + segs[q][2]*cw, north - segs[q][3]*ch}
-				}
-				o := &outline{segs: segs, ls: lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])}
-				p.Add(o)
-				items = append(items, legendItem{r.Extents[ei].ID, lineThumb{o.ls}})
-			}
-			for _, l := range marks.layers {
-				if len(l.xys) == 0 {
-					continue
-				}
-				if l.halo {
-					hs, err := plotter.NewScatter(l.xys)
-					if err != nil {
-						return fmt.Errorf("report: figure map: %w", err)
-					}
-					hs.GlyphStyle = haloOf(l.gs)
-					p.Add(hs)
-				}
-				sc, err := plotter.NewScatter(l.xys)
-				if err != nil {
-					return fmt.Errorf("report: figure map: %w", err)
-				}
-				sc.GlyphStyle = l.gs
-				p.Add(sc)
-			}
-			fitAspect(p, mapC, west, south, east, north, aspect)
-			p.Draw(mapC)
-			da := p.DataCanvas(mapC)
-			if r.Grid.Geographic {
-				kmX := (p.X.Max - p.X.Min) * aspect * KmPerDegree
-				scaleKmPerPt = kmX / float64(da.Max.X-da.Min.X)
-			}
-			legC.Min.X = da.Min.X
-			drawLegendRows(legC, legendRows(items, legC.Max.X-legC.Min.X))
 		}
 		// Shared key: point marks, suitability colour bar, scale and north.
 		keyC, barC := splitRight(bottom, f.W/2)
@@ -358,8 +410,8 @@ func mapFigure(r *Results) (figure, bool) {
 		drawLegendRows(keyC, sharedRows)
 		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
 		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model)
-		if r.Grid.Geographic && scaleKmPerPt > 0 {
-			drawScaleBar(scaleC, scaleKmPerPt)
+		if kmPerPt > 0 {
+			drawScaleBar(scaleC, kmPerPt)
 		}
 		return nil
 	}
