@@ -119,17 +119,20 @@ func areaAxis(max float64) (float64, string) {
 	return 1, "extent area (km²)"
 }
 
-// metricsFigure draws one panel per metric: value against extent area.
-func metricsFigure(r *Results) figure {
+// metricPanel is one metric's data: its points per model.
+type metricPanel struct {
+	m   MetricInfo
+	pts [][]metricPoint // per model, in Sensitivity.ModelNames order
+}
+
+// metricPanels returns the metrics that have at least one point, and the
+// largest extent area among their points.
+func metricPanels(r *Results) ([]metricPanel, float64) {
 	s := r.Sensitivity
-	type panel struct {
-		m   MetricInfo
-		pts [][]metricPoint // per model
-	}
-	var panels []panel
+	var panels []metricPanel
 	maxArea := 0.0
 	for _, m := range s.Metrics {
-		pn := panel{m: m, pts: make([][]metricPoint, len(s.ModelNames))}
+		pn := metricPanel{m: m, pts: make([][]metricPoint, len(s.ModelNames))}
 		any := false
 		for i, model := range s.ModelNames {
 			pn.pts[i] = metricPoints(r, m, model)
@@ -142,6 +145,66 @@ func metricsFigure(r *Results) figure {
 			panels = append(panels, pn)
 		}
 	}
+	return panels, maxArea
+}
+
+// plot draws the panel: per model a line through the points on a log area
+// axis (areas divided by div), bars where the metric has them.
+func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Plot, error) {
+	p := newPlot(upperFirst(pn.m.Label), titleW)
+	p.X.Scale = plot.LogScale{}
+	p.X.Tick.Marker = logTicks{}
+	p.X.Label.Text = unit
+	lo, hi := math.Inf(1), math.Inf(-1)
+	amin, amax := math.Inf(1), math.Inf(-1)
+	nm := len(pn.pts)
+	for i, pts := range pn.pts {
+		if len(pts) == 0 {
+			continue
+		}
+		// Models sit a few percent apart on the area axis so that their
+		// bars do not overlap.
+		shift := math.Pow(2, 0.05*(float64(i)-float64(nm-1)/2))
+		xys := make(plotter.XYs, len(pts))
+		var ep errPoints
+		for q, pt := range pts {
+			x := pt.area / div * shift
+			xys[q] = plotter.XY{X: x, Y: pt.v}
+			lo, hi = math.Min(lo, pt.v), math.Max(hi, pt.v)
+			amin, amax = math.Min(amin, pt.area/div), math.Max(amax, pt.area/div)
+			if pt.bar {
+				ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: pt.v})
+				ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, pt.v-pt.lo), High: math.Max(0, pt.hi-pt.v)})
+				lo, hi = math.Min(lo, pt.lo), math.Max(hi, pt.hi)
+			}
+		}
+		l, sc, err := plotter.NewLinePoints(xys)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure metrics: %w", err)
+		}
+		l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
+		sc.GlyphStyle = markerStyle(i)
+		p.Add(l)
+		if len(ep.XYs) > 0 {
+			eb, err := plotter.NewYErrorBars(ep)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
+			eb.CapWidth = vg.Points(3)
+			p.Add(eb)
+		}
+		p.Add(sc)
+	}
+	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
+	p.X.Min, p.X.Max = amin/1.25, amax*1.25
+	return p, nil
+}
+
+// metricsFigure draws one panel per metric: value against extent area.
+func metricsFigure(r *Results) figure {
+	s := r.Sensitivity
+	panels, maxArea := metricPanels(r)
 	cols := min(3, max(1, len(panels)))
 	rows := max(1, (len(panels)+cols-1)/cols)
 	f := figure{Name: "metrics_vs_area", Title: "Each score against extent area", W: twoColumns}
@@ -155,8 +218,7 @@ func metricsFigure(r *Results) figure {
 	}
 	legend := legendRows(items, f.W)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
-	panelH := 52 * vg.Millimeter
-	f.H = min(maxHeight, legendH+vg.Length(rows)*panelH)
+	f.H = min(maxHeight, legendH+vg.Length(rows)*52*vg.Millimeter)
 	f.Caption = metricsCaption(r)
 	div, unit := areaAxis(maxArea)
 	panelW := f.W / vg.Length(cols)
@@ -168,54 +230,10 @@ func metricsFigure(r *Results) figure {
 			plots[j] = make([]*plot.Plot, cols)
 		}
 		for k, pn := range panels {
-			p := newPlot(upperFirst(pn.m.Label), panelW-vg.Points(30))
-			p.X.Scale = plot.LogScale{}
-			p.X.Tick.Marker = logTicks{}
-			p.X.Label.Text = unit
-			lo, hi := math.Inf(1), math.Inf(-1)
-			amin, amax := math.Inf(1), math.Inf(-1)
-			nm := len(s.ModelNames)
-			for i := range s.ModelNames {
-				pts := pn.pts[i]
-				if len(pts) == 0 {
-					continue
-				}
-				// Models sit a few percent apart on the area axis so that
-				// their bars do not overlap.
-				shift := math.Pow(2, 0.05*(float64(i)-float64(nm-1)/2))
-				xys := make(plotter.XYs, len(pts))
-				var ep errPoints
-				for q, pt := range pts {
-					x := pt.area / div * shift
-					xys[q] = plotter.XY{X: x, Y: pt.v}
-					lo, hi = math.Min(lo, pt.v), math.Max(hi, pt.v)
-					amin, amax = math.Min(amin, pt.area/div), math.Max(amax, pt.area/div)
-					if pt.bar {
-						ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: pt.v})
-						ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, pt.v-pt.lo), High: math.Max(0, pt.hi-pt.v)})
-						lo, hi = math.Min(lo, pt.lo), math.Max(hi, pt.hi)
-					}
-				}
-				l, sc, err := plotter.NewLinePoints(xys)
-				if err != nil {
-					return fmt.Errorf("report: figure metrics: %w", err)
-				}
-				l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
-				sc.GlyphStyle = markerStyle(i)
-				p.Add(l)
-				if len(ep.XYs) > 0 {
-					eb, err := plotter.NewYErrorBars(ep)
-					if err != nil {
-						return fmt.Errorf("report: figure metrics: %w", err)
-					}
-					eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
-					eb.CapWidth = vg.Points(3)
-					p.Add(eb)
-				}
-				p.Add(sc)
+			p, err := pn.plot(panelW-vg.Points(30), div, unit)
+			if err != nil {
+				return err
 			}
-			p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
-			p.X.Min, p.X.Max = amin/1.25, amax*1.25
 			plots[k/cols][k%cols] = p
 		}
 		drawTiles(plots, rest)
