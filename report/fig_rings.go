@@ -133,6 +133,44 @@ func (w chainWaterfall) rowLabels(first, last string) []string {
 	return append(ls, last)
 }
 
+// plot returns the panel: the waterfall with its rows named on the y axis
+// and an AUC axis from the data, within 0 to 1.
+func (w chainWaterfall) plot(models []string, titleW vg.Length) *plot.Plot {
+	title := "nested chain " + w.cs[0].Chain
+	if len(w.cs) < len(models) {
+		title += ", model"
+		for q, c := range w.cs {
+			if q > 0 {
+				title += ","
+			}
+			title += " " + c.Model
+		}
+	}
+	p := newPlot(title, titleW)
+	p.Add(w)
+	names := w.rowLabels(w.cs[0].Members[0], w.cs[0].Members[len(w.cs[0].Members)-1])
+	var ts []plot.Tick
+	for q, n := range names {
+		ts = append(ts, plot.Tick{Value: w.rowCentre(q), Label: n})
+	}
+	p.Y.Tick.Marker = plot.ConstantTicks(ts)
+	p.Y.Tick.Length = 0
+	p.Y.LineStyle.Width = 0
+	xmin, xmax, ymin, ymax := w.DataRange()
+	if xmax-xmin < 0.02 {
+		mid := (xmin + xmax) / 2
+		xmin, xmax = mid-0.01, mid+0.01
+	}
+	pad := 0.06 * (xmax - xmin)
+	step, _ := niceStepN(xmin-pad, xmax+pad, 5)
+	p.X.Min = math.Max(0, math.Floor((xmin-pad)/step+1e-9)*step)
+	p.X.Max = math.Min(1, math.Ceil((xmax+pad)/step-1e-9)*step)
+	p.X.Tick.Marker = niceTicks{N: 5}
+	p.X.Label.Text = "AUC"
+	p.Y.Min, p.Y.Max = ymin, ymax
+	return p
+}
+
 // ringsNote says how to read the waterfall, in particular a negative step.
 const ringsNote = "How to read a step: each arrow moves the AUC from one extent of the chain to the next larger one. " +
 	"The new ring has its own AUC (in the column on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
@@ -232,38 +270,7 @@ func ringsFigure(r *Results) (figure, bool) {
 		y := rest.Max.Y - vg.Points(3) // glyphs of the top title reach above its box
 		left := vg.Length(0)
 		for i, w := range panels {
-			title := "nested chain " + w.cs[0].Chain
-			if len(w.cs) < len(s.ModelNames) {
-				title += ", model"
-				for q, c := range w.cs {
-					if q > 0 {
-						title += ","
-					}
-					title += " " + c.Model
-				}
-			}
-			p := newPlot(title, f.W-labelW)
-			p.Add(w)
-			names := w.rowLabels(w.cs[0].Members[0], w.cs[0].Members[len(w.cs[0].Members)-1])
-			var ts []plot.Tick
-			for q, n := range names {
-				ts = append(ts, plot.Tick{Value: w.rowCentre(q), Label: n})
-			}
-			p.Y.Tick.Marker = plot.ConstantTicks(ts)
-			p.Y.Tick.Length = 0
-			p.Y.LineStyle.Width = 0
-			xmin, xmax, ymin, ymax := w.DataRange()
-			if xmax-xmin < 0.02 {
-				mid := (xmin + xmax) / 2
-				xmin, xmax = mid-0.01, mid+0.01
-			}
-			pad := 0.06 * (xmax - xmin)
-			step, _ := niceStepN(xmin-pad, xmax+pad, 5)
-			p.X.Min = math.Max(0, math.Floor((xmin-pad)/step+1e-9)*step)
-			p.X.Max = math.Min(1, math.Ceil((xmax+pad)/step-1e-9)*step)
-			p.X.Tick.Marker = niceTicks{N: 5}
-			p.X.Label.Text = "AUC"
-			p.Y.Min, p.Y.Max = ymin, ymax
+			p := w.plot(s.ModelNames, f.W-labelW)
 			c := rest
 			c.Max.Y = y
 			c.Min.Y = y - heights[i]*scale
