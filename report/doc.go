@@ -6,7 +6,7 @@
 // points with distances to the nearest training point) and calls
 //
 //	Analyze(r)      // fills r.Sensitivity
-//	Write(dir, r)   // report.html, methods.md, figures/*.svg, figures/*.png
+//	Write(dir, r)   // report.html, methods.md, figures/*.pdf, *.svg, *.png
 //
 // # Analysis
 //
@@ -46,11 +46,19 @@
 // report.html opens from disk with no network: figures are inline SVG
 // (their raster images are data: URIs), the style and scripts are inline,
 // and a Content-Security-Policy forbids every fetch. It shows the headline,
-// four figures (metrics against area, ROC curves on the area axis, a map of
-// the extents and points, the nested-ring decomposition), sortable tables
-// and an extent selector for teaching (report.html#extent=ID&model=NAME
-// opens it on that extent). Colours follow Okabe & Ito (2008); lines and
-// markers also differ in dash and shape so that greyscale prints work.
+// four figures (scores against area, ROC curves on the area axis, maps of
+// the extents as small multiples per nested chain, a waterfall of the AUC
+// along each chain), sortable tables (threshold tests and partial ROC in
+// long form, one row per model, extent and rule or E) and an extent
+// selector for teaching (report.html#extent=ID&model=NAME opens it on that
+// extent).
+//
+// Figures are drawn for print (fig_style.go): one or two journal columns
+// wide (85 or 175 mm), text of at least 8 pt, legends outside the data,
+// ticks from our own generator (fig_ticks.go), written as vector PDF, SVG
+// and 300 dpi PNG. Colours follow Paul Tol's colour-blind-safe "vibrant"
+// scheme with no colour twice in a panel; lines and markers also differ in
+// dash and shape so that greyscale prints work.
 // methods.md holds a methods paragraph and a reply to a reviewer filled
 // with the run's numbers. Output is deterministic for the same Results.
 package report

@@ -7,6 +7,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"gonum.org/v1/plot/vg"
 )
 
 func htmlEscape(s string) string { return html.EscapeString(s) }
@@ -79,7 +81,7 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	p.s("<style>" + reportCSS + "</style>\n</head>\n<body>\n")
 	p.f(`<header><h1>How much of the score comes from the extent?</h1><p class="sub">%s · seed %d · %d model%s · %d extents scored</p></header>`+"\n",
 		htmlEscape(sw), r.Seed, len(s.ModelNames), plural(len(s.ModelNames)), len(s.ScoredExtents))
-	p.s(`<nav aria-label="contents"><a href="#summary">Summary</a> <a href="#figures">Figures</a> <a href="#explore">Explore one extent</a> <a href="#analysis">Analysis</a> <a href="#scores">All scores</a> <a href="#extents">Extents</a> <a href="#settings">Settings and inputs</a> <a href="#warnings">Warnings</a> <a href="#methods">Methods text</a></nav>` + "\n")
+	p.s(`<nav aria-label="contents"><a href="#summary">Summary</a> <a href="#figures">Figures</a> <a href="#explore">Explore one extent</a> <a href="#analysis">Analysis</a> <a href="#scores">Scores</a> <a href="#extents">Extents</a> <a href="#settings">Settings and inputs</a> <a href="#warnings">Warnings</a> <a href="#methods">Methods text</a></nav>` + "\n")
 
 	// Summary.
 	p.s(`<section id="summary"><h2>Summary</h2>`)
@@ -100,7 +102,12 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	for i, rf := range figs {
 		p.f(`<figure id="figure-%s"><h3>Figure %d. %s</h3>`, rf.fig.Name, i+1, htmlEscape(rf.fig.Title))
 		p.s(inlineSVG(rf.svg, "fig-"+rf.fig.Name, rf.fig.Title))
-		p.f(`<figcaption>%s Files: figures/%s.svg, figures/%s.png.</figcaption></figure>`+"\n", htmlEscape(rf.fig.Caption), rf.fig.Name, rf.fig.Name)
+		p.f(`<figcaption>%s`, htmlEscape(rf.fig.Caption))
+		if rf.fig.Note != "" {
+			p.f(` <span class="note">%s</span>`, htmlEscape(rf.fig.Note))
+		}
+		p.f(` Files for print: figures/%[1]s.pdf (vector), figures/%[1]s.svg, figures/%[1]s.png (%[2]d dpi), %[3]s mm wide.</figcaption></figure>`+"\n",
+			rf.fig.Name, pngDPI, strconv.Itoa(int(math.Round(float64(rf.fig.W/vg.Millimeter)))))
 	}
 	p.s("</section>\n")
 
@@ -118,8 +125,8 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	p.s("</section>\n")
 
 	// Every score.
-	p.s(`<section id="scores"><h2>All scores</h2><p>Click a column header to sort.</p>`)
-	writeScoreTable(&p, r)
+	p.s(`<section id="scores"><h2>Scores</h2>`)
+	writeScoreTables(&p, r)
 	p.s("</section>\n")
 
 	// Extents.
@@ -227,7 +234,7 @@ func writeAnalysisTables(p *page, r *Results) {
 		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3), defNum(sp.SD, sp.SDDefined, 3))
 		rows = append(rows, row)
 	}
-	p.table("tbl-spread", "", []string{"metric", "model", "n", "min", "max", "range", "SD"}, rows)
+	p.table("tbl-spread", "", []string{"metric", "model", "extents scored", "minimum", "maximum", "range", "SD across extents"}, rows)
 
 	// Decomposition.
 	if len(s.Decompositions) > 0 {
@@ -289,13 +296,13 @@ func writeAnalysisTables(p *page, r *Results) {
 				rows = append(rows, row)
 			}
 		}
-		p.table("tbl-chains", "", []string{"chain", "model", "step", "ring area km²", "ring AUC", "AUC before", "AUC after", "change", "share %"}, rows)
+		p.table("tbl-chains", "", []string{"nested chain", "model", "step", "ring area (km²)", "AUC of the ring alone", "AUC before", "AUC after", "change", "share of the chain's change (%)"}, rows)
 		rows = nil
 		for _, c := range s.Chains {
 			rows = append(rows, []cell{tc(c.Chain), tc(c.Model), ic(c.Slope.N), defNum(c.Slope.PerDoubling, c.Slope.Defined, 4), defNum(c.Slope.R2, c.Slope.R2Defined, 2)})
 		}
 		p.s(`<p>Slope of AUC against log2(area) along each chain: a description of the chain (its members are nested and share test points), with no interval.</p>`)
-		p.table("tbl-chain-slopes", "", []string{"chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
+		p.table("tbl-chain-slopes", "", []string{"nested chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
 	}
 
 	// Truncation.
@@ -315,7 +322,7 @@ func writeAnalysisTables(p *page, r *Results) {
 	}
 
 	// Where errors fall.
-	p.s(`<h3>Where errors fall</h3><p>Test points omitted at each threshold (ids are data line numbers in the occurrence file; the map marks those omitted by the first model at the minimum training presence).</p>`)
+	p.s(`<h3>Where errors fall</h3><p>Test points omitted at each threshold (ids are line numbers in the occurrence file; the maps mark the test points the first model omits at the minimum and at the 10th percentile training presence).</p>`)
 	rows = nil
 	for _, o := range s.OmittedPoints {
 		ids := make([]string, len(o.IDs))
@@ -324,7 +331,7 @@ func writeAnalysisTables(p *page, r *Results) {
 		}
 		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(strings.Join(ids, ", "))})
 	}
-	p.table("tbl-omitted", "", []string{"model", "threshold", "value", "omitted", "test points", "share", "ids"}, rows)
+	p.table("tbl-omitted", "", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 }
 
 func yesNo(b bool) string {
@@ -349,74 +356,43 @@ func defNum(v float64, ok bool, dec int) cell {
 	return nc(v, dec)
 }
 
-// scoreColumns lists the E values and threshold keys present in the scores.
-func scoreColumns(r *Results) (es []float64, ths []MetricInfo) {
-	for _, m := range r.Sensitivity.Metrics {
-		switch m.Kind {
-		case "partial_roc":
-			es = append(es, m.E)
-		case "omission":
-			ths = append(ths, m)
-		}
+// ruleName spells out a threshold rule: "minimum training presence",
+// "10th percentile training presence" or "fixed cut 0.5".
+func ruleName(t Threshold) string {
+	if t.Name == "fixed" {
+		return "fixed cut " + fmtG(t.Value)
 	}
-	return es, ths
+	return thresholdLabel(t.Name)
 }
 
-func writeScoreTable(p *page, r *Results) {
-	es, ths := scoreColumns(r)
-	head := []string{"model", "extent", "area km²", "test pts", "train pts", "scored", "AUC", "AUC unweighted", "AUC train", "AUC boot SD"}
-	for _, e := range es {
-		g := fmtG(e)
-		head = append(head, "pROC ratio E="+g, "pROC CI E="+g, "pROC p E="+g)
-	}
-	for _, t := range ths {
-		name := strings.TrimPrefix(t.Label, "omission at ")
-		head = append(head, "omission "+name, "area "+name, "p binomial "+name)
-	}
-	head = append(head, "Boyce")
+// formedPartialROC reports whether at least one bootstrap resample formed a
+// partial ROC ratio.
+func formedPartialROC(pr PartialROC) bool {
+	return !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations)
+}
+
+// writeScoreTables writes the scores as three long tables: the scores
+// with one value per model and extent, the partial ROC results (one row
+// per model, extent and E) and the threshold tests (one row per model,
+// extent and rule).
+func writeScoreTables(p *page, r *Results) {
+	st := r.Settings
+	p.s(`<h3 id="scores-main">Scores per model and extent</h3>`)
+	p.s(`<p>Every score uses the test records inside the extent (training records for the training AUC). AUC standard error: from the test records' placements, the extent's cells taken as the whole population. AUC resample SD: the SD of AUC over the run's full-size paired resamples of the test records; it estimates the same quantity. Click a column header to sort.</p>`)
+	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
+		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
 	for _, sc := range r.Scores {
 		row := []cell{tc(sc.Model), tc(sc.Extent), areaCell(sc.AreaKm2)}
 		if !sc.Scored {
 			row = append(row, dash, dash, tc("no: "+sc.NotScored))
-			for i := 6; i < len(head); i++ {
+			for len(row) < len(head) {
 				row = append(row, dash)
 			}
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
-		for _, e := range es {
-			var pr *PartialROC
-			for i := range sc.PartialROC {
-				if math.Abs(sc.PartialROC[i].E-e) <= 1e-12 {
-					pr = &sc.PartialROC[i]
-				}
-			}
-			if pr == nil || !pr.Defined || (pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-				ratio := dash
-				if pr != nil && !pr.Defined {
-					ratio = tc("undefined")
-				}
-				row = append(row, ratio, dash, dash)
-				continue
-			}
-			row = append(row, nc(pr.Ratio, 3), cell{text: f3(pr.CILow) + "–" + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"}, cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
-		}
-		for _, t := range ths {
-			var th *Threshold
-			for i := range sc.Thresholds {
-				x := &sc.Thresholds[i]
-				if x.Name == t.Threshold && (x.Name != "fixed" || math.Abs(x.Value-t.ThresholdValue) <= 1e-12) {
-					th = x
-				}
-			}
-			if th == nil {
-				row = append(row, dash, dash, dash)
-				continue
-			}
-			row = append(row, nc(th.Omission, 3), nc(th.AreaFraction, 3), cell{text: fmtP(th.PBinomial), num: th.PBinomial, isN: true, cls: "n"})
-		}
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCSE, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
 		if sc.Boyce != nil {
 			row = append(row, nc(sc.Boyce.Index, 3))
 		} else {
@@ -425,6 +401,57 @@ func writeScoreTable(p *page, r *Results) {
 		rows = append(rows, row)
 	}
 	p.table("tbl-scores", "", head, rows)
+
+	p.s(`<h3 id="scores-partial-roc">Partial ROC</h3>`)
+	p.f(`<p>One row per model, extent and allowable omission E. Full-sample ratio: all test records inside the extent. Resamples: %d bootstrap draws of %s%% of those test records; the mean, the 2.5th to 97.5th percentiles and the share of resamples with a ratio of at most 1 (the P value) come from the resamples that formed a ratio.</p>`,
+		st.Iterations, fmtG(100*st.ResampleFraction))
+	head = []string{"model", "extent", "E", "partial ROC ratio, full sample", "partial ROC ratio, resample mean", "2.5th to 97.5th percentile of resamples", "share of resamples at or below 1 (P)", "resamples formed"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			row := []cell{tc(sc.Model), tc(sc.Extent), nc(pr.E, 2)}
+			full := nc(pr.Ratio, 3)
+			if !pr.Defined {
+				full = cell{text: "undefined: " + pr.Reason}
+			}
+			if !formedPartialROC(pr) {
+				row = append(row, full, dash, dash, dash)
+			} else {
+				row = append(row, full, nc(pr.RatioMean, 3),
+					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},
+					cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
+			}
+			row = append(row, cell{text: fmt.Sprintf("%d of %d", pr.Iterations-pr.NotFormed, pr.Iterations), num: float64(pr.Iterations - pr.NotFormed), isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-partial-roc", "", head, rows)
+
+	p.s(`<h3 id="scores-thresholds">Threshold tests</h3>`)
+	p.s(`<p>One row per model, extent and rule. The cut comes from the training records (or is fixed), so it is the same on every extent; the test records are those inside the extent. Missed: test records below the cut. One-sided binomial P: the chance of at least as many test records at or above the cut if they fell at random on the extent, each with probability equal to the share of the extent at or above the cut. That share, and so P, changes with the extent; the share missed changes only when an extent leaves test records out.</p>`)
+	head = []string{"model", "extent", "rule", "cut value", "test records missed (k of n)", "share missed", "share of the extent at or above the cut", "one-sided binomial P"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, t := range sc.Thresholds {
+			missed := t.N - t.Successes
+			row := []cell{tc(sc.Model), tc(sc.Extent), tc(ruleName(t)), nc(t.Value, 4),
+				cell{text: fmt.Sprintf("%d of %d", missed, t.N), num: float64(missed), isN: true, cls: "n"}}
+			if t.N > 0 {
+				row = append(row, nc(t.Omission, 3))
+			} else {
+				row = append(row, dash)
+			}
+			row = append(row, nc(t.AreaFraction, 3), cell{text: fmtP(t.PBinomial), num: t.PBinomial, isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-thresholds", "", head, rows)
 }
 
 func writeExtentTables(p *page, r *Results) {
@@ -438,7 +465,8 @@ func writeExtentTables(p *page, r *Results) {
 		rows = append(rows, []cell{tc(e.ID), tc(e.Kind), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
 			areaCell(e.AreaKm2), nc(e.ShareOfRaster, 3), ic(e.TrainPoints), ic(e.TestPoints), tc(status)})
 	}
-	p.table("tbl-extents", "", []string{"id", "kind", "parameters", "chain", "cells", "area km²", "share of raster", "train pts", "test pts", "status"}, rows)
+	p.s(`<p>One row per extent of the family: its cells and true area among the cells where the first model has data, its share of the raster's valid area, and the training and test records inside it. Extents with status empty, or duplicate of an earlier one, are left out of the analysis.</p>`)
+	p.table("tbl-extents", "", []string{"id", "kind", "parameters", "nested chain", "cells", "area (km²)", "share of the raster", "training records inside", "test records inside", "status"}, rows)
 	if len(s.SkippedExtents) > 0 {
 		p.s("<h3>Left out of the analysis</h3><ul>")
 		for _, e := range s.SkippedExtents {
@@ -507,22 +535,22 @@ func writeSettings(p *page, r *Results) {
 
 // teachCell is one model x extent entry of the embedded data.
 type teachCell struct {
-	Model      string    `json:"model"`
-	Extent     string    `json:"extent"`
-	Scored     bool      `json:"scored"`
-	Reason     string    `json:"reason,omitempty"`
-	AUC        float64   `json:"auc"`
-	AUCSD      float64   `json:"auc_sd"`
-	PROC       float64   `json:"proc"`
-	PROCLow    float64   `json:"proc_low"`
-	PROCHigh   float64   `json:"proc_high"`
-	PROCOK     bool      `json:"proc_ok"`
-	Omission   float64   `json:"omission"`
-	AreaFrac   float64   `json:"area_fraction"`
-	ThreshOK   bool      `json:"threshold_ok"`
-	TestPoints int       `json:"test_points"`
-	X          []float64 `json:"x"`
-	Y          []float64 `json:"y"`
+	Model          string    `json:"model"`
+	Extent         string    `json:"extent"`
+	Scored         bool      `json:"scored"`
+	Reason         string    `json:"reason,omitempty"`
+	AUC            float64   `json:"auc"`
+	AUCSD          float64   `json:"auc_sd"`
+	PartialROC     float64   `json:"partial_roc"`
+	PartialROCLow  float64   `json:"partial_roc_low"`
+	PartialROCHigh float64   `json:"partial_roc_high"`
+	PartialROCOK   bool      `json:"partial_roc_ok"`
+	Omission       float64   `json:"omission"`
+	AreaFrac       float64   `json:"area_fraction"`
+	ThreshOK       bool      `json:"threshold_ok"`
+	TestPoints     int       `json:"test_points"`
+	X              []float64 `json:"x"`
+	Y              []float64 `json:"y"`
 }
 
 type teachExtent struct {
@@ -584,7 +612,7 @@ func teachData(r *Results) ([]byte, error) {
 			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
 			for _, pr := range sc.PartialROC {
 				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-					c.PROC, c.PROCLow, c.PROCHigh, c.PROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
+					c.PartialROC, c.PartialROCLow, c.PartialROCHigh, c.PartialROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
 				}
 			}
 			for _, t := range sc.Thresholds {

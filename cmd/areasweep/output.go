@@ -86,12 +86,18 @@ func writeAtomic(path string, data []byte) error {
 
 func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// scoresCSV renders the scores as a tidy table: one row per model, extent
-// and metric, with the E or threshold the metric depends on.
+// scoresCSV renders the scores as one tidy table: one row per model,
+// extent and value, for scored pairs only. test_points is the number of
+// test records inside the extent that every score of the row uses. Partial
+// ROC rows carry their E; threshold-test rows carry their rule
+// ("minimum_training_presence", "p10_training_presence", "fixed_<value>")
+// and give, per rule, the cut value, the test records missed (k) out of
+// test_points, the share missed, the share of the extent at or above the
+// cut and the one-sided binomial P.
 func scoresCSV(r *report.Results) []byte {
 	var buf bytes.Buffer
 	w := csv.NewWriter(&buf)
-	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "metric", "e", "threshold", "value"})
+	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value"})
 	kinds := map[string]report.Extent{}
 	for _, e := range r.Extents {
 		kinds[e.ID] = e
@@ -101,8 +107,9 @@ func scoresCSV(r *report.Results) []byte {
 			continue
 		}
 		ex := kinds[sc.Extent]
-		row := func(metric, e, th string, v float64) {
-			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), metric, e, th, ftoa(v)})
+		n := strconv.Itoa(sc.TestPoints)
+		row := func(metric, e, rule string, v float64) {
+			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v)})
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
@@ -118,20 +125,21 @@ func scoresCSV(r *report.Results) []byte {
 			} else {
 				row("partial_roc_ratio", e, "", p.Ratio)
 			}
-			row("partial_roc_ratio_mean", e, "", p.RatioMean)
-			row("partial_roc_ci_low", e, "", p.CILow)
-			row("partial_roc_ci_high", e, "", p.CIHigh)
+			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
+			row("partial_roc_resample_p2_5", e, "", p.CILow)
+			row("partial_roc_resample_p97_5", e, "", p.CIHigh)
 			row("partial_roc_p_value", e, "", p.PValue)
 		}
 		for _, t := range sc.Thresholds {
-			name := t.Name
-			if name == "fixed" {
-				name = "fixed_" + ftoa(t.Value)
+			rule := t.Name
+			if rule == "fixed" {
+				rule = "fixed_" + ftoa(t.Value)
 			}
-			row("threshold_value", "", name, t.Value)
-			row("omission_rate", "", name, t.Omission)
-			row("area_fraction_present", "", name, t.AreaFraction)
-			row("binomial_p", "", name, t.PBinomial)
+			row("cut_value", "", rule, t.Value)
+			row("test_points_missed", "", rule, float64(t.N-t.Successes))
+			row("share_missed", "", rule, t.Omission)
+			row("extent_share_at_or_above_cut", "", rule, t.AreaFraction)
+			row("binomial_p_one_sided", "", rule, t.PBinomial)
 		}
 		if sc.Boyce != nil {
 			row("boyce_index", "", "", sc.Boyce.Index)
