@@ -1,0 +1,178 @@
+package pass
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent"
+	"areasweep/extent/geodesy"
+	"areasweep/extent/nullmodel"
+	"areasweep/metrics"
+)
+
+// nullSetup makes a 300 x 200 grid of 0.01-degree cells (the pass test
+// raster's), a distance-only null on it from five training sites, and a
+// two-member family: every cell but 1 in 97 (as if clipped to valid cells)
+// and its western half.
+func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+	t.Helper()
+	g, r := openTestRaster(t, 300, 200)
+	r.Close()
+	ix, err := geodesy.NewIndex([]float64{49.5, 49.1, 48.4, 48.45, 49.9}, []float64{0.3, 1.7, 2.9, 0.05, 1.0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := nullmodel.New(ix, CellCentres(g))
+	fam := &extent.Family{Grid: g, Mask: make([]uint64, g.Cells())}
+	for i := range fam.Mask {
+		if i%97 != 0 {
+			fam.Mask[i] = 1
+			if i%g.Width < g.Width/2 {
+				fam.Mask[i] |= 2
+			}
+		}
+	}
+	fam.Members = []extent.Member{{ID: "all", Status: extent.StatusOK}, {ID: "west", Status: extent.StatusOK}}
+	return g, NewVirtual(g, f), f, fam
+}
+
+// writeFloat64 writes vals (row-major, NaN as no data) as a Float64 GeoTIFF
+// on g's grid, tiled in 64 x 64 blocks.
+func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
+	t.Helper()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float64, g.Width, g.Height, godal.CreationOption("TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(g.GeoTransform)
+	sr, _ := godal.NewSpatialRefFromEPSG(4326)
+	ds.SetSpatialRef(sr)
+	b := ds.Bands()[0]
+	b.SetNoData(-1e300)
+	out := make([]float64, len(vals))
+	for i, v := range vals {
+		out[i] = v
+		if math.IsNaN(v) {
+			out[i] = -1e300
+		}
+	}
+	if err := b.Write(0, 0, out, g.Width, g.Height); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestVirtualEqualsRaster is the property the null model rests on: a
+// GeoTIFF holding the null's values scores exactly what the virtual null
+// scores (values at the points bit for bit, and every accumulator: area
+// at each layout value, range, cells, area, and all metrics), for 1 and 2
+// workers, although the GeoTIFF's blocks (64 x 64) differ from the
+// virtual's (256 x 256).
+func TestVirtualEqualsRaster(t *testing.T) {
+	g, v, f, fam := nullSetup(t)
+	all := make([]float64, g.Cells())
+	f.Fill(0, 0, g.Width, g.Height, nil, all)
+	path := filepath.Join(t.TempDir(), "null.tif")
+	writeFloat64(t, g, path, all)
+	r, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	cells := []int{0, 155, 20 * 300, 50*300 + 40, 99*300 + 250, 150*300 + 7, 199*300 + 299}
+	vv, vok, _ := v.Sample(g, cells)
+	rv, rok, err := r.Sample(g, cells)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range cells {
+		if vv[i] != rv[i] || !vok[i] || !rok[i] || vv[i] != all[cells[i]] {
+			t.Errorf("cell %d: virtual %v (%v), raster %v (%v), field %v", cells[i], vv[i], vok[i], rv[i], rok[i], all[cells[i]])
+		}
+	}
+	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	describe := func(accs []*metrics.Accumulator, st Stats) string {
+		s := fmt.Sprint(st)
+		for k, a := range accs {
+			s += fmt.Sprint(a.Cells(), a.Area(), a.Min(), a.Max())
+			for _, x := range layout.Values() {
+				b, e, ab, ok := a.AreaAt(x)
+				s += fmt.Sprint(b, e, ab, ok)
+			}
+			sc, err := metrics.Score(a, vv[:3], vv[3:], metrics.Settings{Iterations: 20, Seed: uint64(k)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			s += fmt.Sprint(sc)
+		}
+		return s
+	}
+	var want string
+	for _, workers := range []int{1, 2} {
+		accs, st, err := r.Score(g, fam, layout, Options{Workers: workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		raster := describe(accs, st)
+		accs, st, err = v.Score(g, fam, layout, Options{Workers: workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		virtual := describe(accs, st)
+		if raster != virtual {
+			t.Errorf("workers=%d: the virtual null and its GeoTIFF copy score differently", workers)
+		}
+		if want == "" {
+			want = virtual
+		} else if virtual != want {
+			t.Errorf("workers=%d: virtual scores differ from 1 worker", workers)
+		}
+		if accs[0].Cells() != int64(g.Cells()-(g.Cells()+96)/97) {
+			t.Errorf("workers=%d: %d cells scored", workers, accs[0].Cells())
+		}
+	}
+}
+
+// TestRowsHook checks that Options.Rows sees every row of the grid once with
+// the values and weights the pass uses: summing weight over masked valid
+// cells gives each accumulator's area.
+func TestRowsHook(t *testing.T) {
+	g, v, _, fam := nullSetup(t)
+	layout, err := metrics.NewLayout([]float64{-1e4}, -4e5, 0, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var bg nullmodel.Background
+	seen := make([]int, g.Height)
+	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, mask []uint64, w []int64) {
+		d := make([]float64, len(vals))
+		for i, x := range vals {
+			d[i] = -x
+		}
+		bg.AddRow(d, mask, w)
+		seen[row] += len(vals)
+	}}
+	accs, _, err := v.Score(g, fam, layout, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for r, n := range seen {
+		if n != g.Width {
+			t.Fatalf("row %d: %d cells seen, want %d", r, n, g.Width)
+		}
+	}
+	for k := range accs {
+		if bg.Area(k) != accs[k].Area() {
+			t.Errorf("extent %d: rows hook area %d, accumulator %d", k, bg.Area(k), accs[k].Area())
+		}
+	}
+}
