@@ -433,6 +433,12 @@ type analysis struct {
 func newAnalysis(r *Results) *analysis {
 	a := &analysis{r: r, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
 	seenModel := map[string]bool{}
+	// Nulls are references, not models: they never enter the analysis.
+	for _, m := range r.Models {
+		if m.IsNull() {
+			seenModel[m.Name] = true
+		}
+	}
 	for _, m := range r.Models {
 		if !seenModel[m.Name] {
 			seenModel[m.Name] = true
@@ -449,6 +455,9 @@ func newAnalysis(r *Results) *analysis {
 	}
 	for i := range r.Scores {
 		sc := &r.Scores[i]
+		if isNull(r, sc.Model) {
+			continue
+		}
 		if !allExt[sc.Extent] {
 			a.warnings = append(a.warnings, fmt.Sprintf("score of model %s names extent %q, which is not in the extent family: ignored", sc.Model, sc.Extent))
 			continue
@@ -568,4 +577,14 @@ func checkFinite(r *Results) error {
 		}
 	}
 	return nil
+}
+
+// isNull reports whether the model named name is a null.
+func isNull(r *Results, name string) bool {
+	for _, m := range r.Models {
+		if m.Name == name {
+			return m.IsNull()
+		}
+	}
+	return false
 }
