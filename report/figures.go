@@ -251,6 +251,19 @@ func metricsFigure(r *Results) figure {
 					p.Legend.Add(model, l, sc)
 				}
 			}
+			for j, null := range nulls(r) {
+				if xys := nullSeries(r, m, null.Name); len(xys) > 0 {
+					l, sc, err := plotter.NewLinePoints(xys)
+					if err != nil {
+						return fmt.Errorf("report: figure metrics: %w", err)
+					}
+					l.LineStyle, sc.GlyphStyle = nullLineStyle(j)
+					p.Add(l, sc)
+					if k == 0 {
+						p.Legend.Add(modelLabel(r, null.Name), l, sc)
+					}
+				}
+			}
 			if k == 0 {
 				p.Legend.Top = false
 				p.Legend.Left = false

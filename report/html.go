@@ -284,6 +284,12 @@ func writeAnalysisTables(p *page, r *Results) {
 		p.table("tbl-independence", "Distance from each test point to the nearest training point (km)", []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
 			[][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}})
 	}
+	if sb := sortingBiasRows(r); len(sb) > 0 {
+		p.s(`<h3>Spatial sorting bias</h3>`)
+		p.f("<p>%s</p>", htmlEscape(sortingBiasNote))
+		p.table("tbl-sorting-bias", "Distance to the nearest training point: test points against the extent's cells", []string{"extent", "area",
+			"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"}, sb)
+	}
 
 	// Where errors fall.
 	p.s(`<h3>Where errors fall</h3><p>Test points omitted at each threshold (ids are data line numbers in the occurrence file; the map marks those omitted by the first model at the minimum training presence).</p>`)
@@ -347,7 +353,7 @@ func writeScoreTable(p *page, r *Results) {
 	head = append(head, "Boyce")
 	var rows [][]cell
 	for _, sc := range r.Scores {
-		row := []cell{tc(sc.Model), tc(sc.Extent), areaCell(sc.AreaKm2)}
+		row := []cell{tc(modelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
 		if !sc.Scored {
 			row = append(row, dash, dash, tc("no: "+sc.NotScored))
 			for i := 6; i < len(head); i++ {
@@ -463,7 +469,7 @@ func writeSettings(p *page, r *Results) {
 	p.table("tbl-inputs", "", []string{"role", "path", "SHA-256"}, in)
 	var ms [][]cell
 	for _, m := range r.Models {
-		ms = append(ms, []cell{tc(m.Name), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
+		ms = append(ms, []cell{tc(modelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
 	}
 	p.s("<h3>Models</h3>")
 	p.table("tbl-models", "", []string{"model", "path", "minimum", "maximum", "share of area at minimum"}, ms)

@@ -91,18 +91,26 @@ func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 func scoresCSV(r *report.Results) []byte {
 	var buf bytes.Buffer
 	w := csv.NewWriter(&buf)
-	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "metric", "e", "threshold", "value"})
+	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "metric", "e", "threshold", "value", "role"})
 	kinds := map[string]report.Extent{}
 	for _, e := range r.Extents {
 		kinds[e.ID] = e
+	}
+	roles := map[string]report.Model{}
+	for _, m := range r.Models {
+		roles[m.Name] = m
 	}
 	for _, sc := range r.Scores {
 		if !sc.Scored {
 			continue
 		}
 		ex := kinds[sc.Extent]
+		role := report.RoleModel
+		if roles[sc.Model].IsNull() {
+			role = report.RoleNull
+		}
 		row := func(metric, e, th string, v float64) {
-			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), metric, e, th, ftoa(v)})
+			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), metric, e, th, ftoa(v), role})
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
@@ -128,6 +136,16 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		if sc.Boyce != nil {
 			row("boyce_index", "", "", sc.Boyce.Index)
+		}
+		// The sorting bias belongs to the extent; it is listed with the
+		// distance-only null, whose pass measures it.
+		if sb := ex.SortingBias; sb != nil && sb.Defined && roles[sc.Model].NullKind == report.NullDistance {
+			row("sorting_bias_ratio_mean", "", "", sb.RatioMean)
+			row("sorting_bias_ratio_median", "", "", sb.RatioMedian)
+			row("sorting_bias_test_mean_km", "", "", sb.TestMeanKm)
+			row("sorting_bias_background_mean_km", "", "", sb.BackgroundMeanKm)
+			row("sorting_bias_test_median_km", "", "", sb.TestMedianKm)
+			row("sorting_bias_background_median_km", "", "", sb.BackgroundMedianKm)
 		}
 	}
 	w.Flush()

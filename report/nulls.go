@@ -1,0 +1,91 @@
+package report
+
+import (
+	"image/color"
+	"sort"
+
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// modelLabel is how the report names a model: nulls carry what they are,
+// so that no reader takes one for a model under evaluation.
+func modelLabel(r *Results, name string) string {
+	for _, m := range r.Models {
+		if m.Name != name || !m.IsNull() {
+			continue
+		}
+		if m.NullKind == NullDistance {
+			return name + " (distance-only null)"
+		}
+		return name + " (null)"
+	}
+	return name
+}
+
+// nulls returns the nulls of r in Results.Models order.
+func nulls(r *Results) []Model {
+	var out []Model
+	for _, m := range r.Models {
+		if m.IsNull() {
+			out = append(out, m)
+		}
+	}
+	return out
+}
+
+// nullLineStyle draws the k-th null in the metric figures: grey, dotted,
+// thinner than the models' lines, and with hollow markers, so it reads as
+// a reference and not as one more model.
+func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
+	grey := []color.Color{color.Gray{Y: 90}, color.Gray{Y: 150}}[k%2]
+	return draw.LineStyle{Color: grey, Width: vg.Points(1.2), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2)}},
+		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: draw.RingGlyph{}}
+}
+
+// nullSeries returns, for metric m, the null's value against the extent
+// area on every usable extent it is scored on, sorted by area.
+func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
+	ok := map[string]float64{}
+	for _, e := range r.Extents {
+		if e.Status == "ok" && e.AreaKm2 > 0 {
+			ok[e.ID] = e.AreaKm2
+		}
+	}
+	var xys plotter.XYs
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		area, usable := ok[sc.Extent]
+		if sc.Model != null || !sc.Scored || !usable {
+			continue
+		}
+		if v, has, _, _, _, _ := metricValue(m, sc, r.Settings.Iterations); has {
+			xys = append(xys, plotter.XY{X: area, Y: v})
+		}
+	}
+	sort.SliceStable(xys, func(a, b int) bool { return xys[a].X < xys[b].X })
+	return xys
+}
+
+// sortingBiasRows gives one table row per extent with a defined spatial
+// sorting bias, in family order.
+func sortingBiasRows(r *Results) [][]cell {
+	var rows [][]cell
+	for _, e := range r.Extents {
+		sb := e.SortingBias
+		if sb == nil || !sb.Defined {
+			continue
+		}
+		rows = append(rows, []cell{tc(e.ID), areaCell(e.AreaKm2), ic(sb.TestPoints), nc(sb.TestMeanKm, 1), nc(sb.BackgroundMeanKm, 1),
+			nc(sb.RatioMean, 3), nc(sb.TestMedianKm, 1), nc(sb.BackgroundMedianKm, 1), nc(sb.RatioMedian, 3)})
+	}
+	return rows
+}
+
+// sortingBiasNote explains the sorting-bias table.
+const sortingBiasNote = "Spatial sorting bias (Hijmans 2012, Ecology 93:679-688): the mean (and median) geodesic distance from the test points " +
+	"inside each extent to the nearest training point, over the same distance averaged over the extent's cells by area. " +
+	"Values well below 1 mean the test points lie much nearer the training points than the background does, so that distance alone " +
+	"separates them: the distance-only null's AUC on the same extent shows how far that carries. A description, not a test. " +
+	"The cells' median is read from bins 0.1% wide."
