@@ -123,6 +123,9 @@ func methodsText(r *Results) string {
 	b.WriteString("- Peterson, A.T., Papeş, M. & Soberón, J. (2008) Rethinking receiver operating characteristic analysis applications in ecological niche modeling. Ecological Modelling 213: 63-72.\n")
 	b.WriteString("- Hirzel, A.H., Le Lay, G., Helfer, V., Randin, C. & Guisan, A. (2006) Evaluating the ability of habitat suitability models to predict species presences. Ecological Modelling 199: 142-152.\n")
 	b.WriteString("- Legendre, P. (2005) Species associations: the Kendall coefficient of concordance revisited. Journal of Agricultural, Biological and Environmental Statistics 10: 226-245.\n")
+	if len(nulls(r)) > 0 {
+		b.WriteString("- Hijmans, R.J. (2012) Cross-validation of species distribution models: removing spatial sorting bias and calibration with a null model. Ecology 93: 679-688.\n")
+	}
 	return b.String()
 }
 
@@ -173,6 +176,7 @@ func resultNumbers(r *Results) string {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
 			trimFloat(s.Independence.Median, 3), pct(s.Independence.NearShare), NearCells)
 	}
+	out += nullSentences(r)
 	return strings.TrimSpace(out)
 }
 

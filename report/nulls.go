@@ -1,8 +1,11 @@
 package report
 
 import (
+	"fmt"
 	"image/color"
+	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
@@ -89,3 +92,63 @@ const sortingBiasNote = "Spatial sorting bias (Hijmans 2012, Ecology 93:679-688)
 	"Values well below 1 mean the test points lie much nearer the training points than the background does, so that distance alone " +
 	"separates them: the distance-only null's AUC on the same extent shows how far that carries. A description, not a test. " +
 	"The cells' median is read from bins 0.1% wide."
+
+// nullSentences describes the nulls and the sorting bias for methods.md:
+// each null's AUC on the base extent beside the models', its range across
+// extents, and the range of the sorting-bias ratio. Descriptions only: the
+// paired difference of a model and a null, with its interval, is not part
+// of this text.
+func nullSentences(r *Results) string {
+	var b strings.Builder
+	auc := func(model, ext string) (float64, bool) {
+		for _, sc := range r.Scores {
+			if sc.Model == model && sc.Extent == ext && sc.Scored {
+				return sc.AUC, true
+			}
+		}
+		return 0, false
+	}
+	okExt := map[string]bool{}
+	for _, e := range r.Extents {
+		okExt[e.ID] = e.Status == "ok"
+	}
+	for _, n := range nulls(r) {
+		lo, hi, k := math.Inf(1), math.Inf(-1), 0
+		for _, sc := range r.Scores {
+			if sc.Model == n.Name && sc.Scored && okExt[sc.Extent] {
+				lo, hi, k = math.Min(lo, sc.AUC), math.Max(hi, sc.AUC), k+1
+			}
+		}
+		if k == 0 {
+			continue
+		}
+		what := "The null " + n.Name
+		if n.NullKind == NullDistance {
+			what = "A distance-only null (minus the geodesic distance from each cell to the nearest training record; Hijmans 2012)"
+		}
+		fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
+		if v, ok := auc(n.Name, "base"); ok {
+			fmt.Fprintf(&b, " and was %s on the base region", f3(v))
+			var ms []string
+			for _, m := range r.Models {
+				if mv, ok := auc(m.Name, "base"); ok && !m.IsNull() {
+					ms = append(ms, fmt.Sprintf("%s %s", m.Name, f3(mv)))
+				}
+			}
+			if len(ms) > 0 {
+				fmt.Fprintf(&b, " (models: %s)", strings.Join(ms, ", "))
+			}
+		}
+		b.WriteString(".")
+	}
+	lo, hi, k := math.Inf(1), math.Inf(-1), 0
+	for _, e := range r.Extents {
+		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == "ok" {
+			lo, hi, k = math.Min(lo, sb.RatioMean), math.Max(hi, sb.RatioMean), k+1
+		}
+	}
+	if k > 0 {
+		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) ranged %s–%s across %d extents.", f3(lo), f3(hi), k)
+	}
+	return b.String()
+}
