@@ -339,8 +339,8 @@ func rocExtents(r *Results) []Extent {
 
 // rocFigure draws the ROC curves on the area axis, one panel per model.
 func rocFigure(r *Results) figure {
-	s := r.Sensitivity
-	n := len(s.ModelNames)
+	panels := rocPanels(r)
+	n := len(panels)
 	cols := n
 	if cols > 3 {
 		cols = 3
@@ -368,8 +368,8 @@ func rocFigure(r *Results) figure {
 		for j := range plots {
 			plots[j] = make([]*plot.Plot, cols)
 		}
-		for i, model := range s.ModelNames {
-			p := newPlot("model " + model)
+		for i, model := range panels {
+			p := newPlot(rocPanelTitle(r, model))
 			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 			p.X.Label.Text = "share of extent area predicted present"
 			p.Y.Label.Text = "share of test presences"

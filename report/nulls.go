@@ -152,3 +152,20 @@ func nullSentences(r *Results) string {
 	}
 	return b.String()
 }
+
+// rocPanels lists the ROC figure's panels: the models, then the nulls.
+func rocPanels(r *Results) []string {
+	out := append([]string(nil), r.Sensitivity.ModelNames...)
+	for _, n := range nulls(r) {
+		out = append(out, n.Name)
+	}
+	return out
+}
+
+// rocPanelTitle names a ROC panel: "model NAME", or the null's label.
+func rocPanelTitle(r *Results, name string) string {
+	if l := modelLabel(r, name); l != name {
+		return l
+	}
+	return "model " + name
+}

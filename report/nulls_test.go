@@ -36,7 +36,8 @@ func withNull(t *testing.T) *Results {
 // TestNullsLeftOutOfAnalysis checks that a null changes nothing in the
 // sensitivity analysis (spreads, decomposition, verdicts, headline are
 // identical to the run without it) while it is labelled in the report
-// page, drawn in the metrics figure's legend, and described in methods.md
+// page, drawn in the metrics figure (legend) and the ROC figure (own
+// panel), and described in methods.md
 // with its AUC range and the sorting bias.
 func TestNullsLeftOutOfAnalysis(t *testing.T) {
 	plain := analyzedSample(t)
@@ -60,12 +61,14 @@ func TestNullsLeftOutOfAnalysis(t *testing.T) {
 			t.Errorf("report.html lacks %q", want)
 		}
 	}
-	fig, err := os.ReadFile(filepath.Join(dir, "figures", "metrics_vs_area.svg"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !strings.Contains(string(fig), "distance-only null") {
-		t.Error("the metrics figure's legend does not name the distance-only null")
+	for _, name := range []string{"metrics_vs_area", "roc_curves"} {
+		fig, err := os.ReadFile(filepath.Join(dir, "figures", name+".svg"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(fig), "distance-only null") {
+			t.Errorf("figure %s does not name the distance-only null", name)
+		}
 	}
 	methods, err := os.ReadFile(filepath.Join(dir, "methods.md"))
 	if err != nil {
