@@ -214,3 +214,72 @@ func BenchmarkNullPass(b *testing.B) {
 		})
 	}
 }
+
+// TestVirtualProjectedMatchesNearest checks the null's values cell by cell
+// against geodesy.Index.Nearest at each cell centre (transformed to WGS84
+// the same way), bit for bit, on projected grids where the tiles are not
+// latitude-longitude rectangles: Lambert azimuthal equal-area over Europe
+// with 2 km and 50 km cells, and a polar stereographic grid with 25 km cells
+// whose scale changes across a tile.
+func TestVirtualProjectedMatchesNearest(t *testing.T) {
+	cases := []struct {
+		name string
+		crs  string
+		gt   [6]float64
+		w, h int
+		// sites in lat/lon
+		lat0, lon0, spread float64
+	}{
+		{"laea-2km", "EPSG:3035", [6]float64{3.9e6, 2000, 0, 3.1e6, 0, -2000}, 180, 140, 48.5, 8, 1.5},
+		{"laea-50km", "EPSG:3035", [6]float64{2.5e6, 50000, 0, 5.0e6, 0, -50000}, 90, 70, 50, 10, 12},
+		{"polar-25km", "EPSG:3413", [6]float64{-2.0e6, 25000, 0, 2.0e6, 0, -25000}, 160, 160, 80, -40, 6},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			g, err := extent.NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			var lats, lons []float64
+			for i := range 15 {
+				lats = append(lats, math.Max(-89.9, math.Min(89.9, tc.lat0+tc.spread*math.Sin(float64(i)*2.1))))
+				lons = append(lons, tc.lon0+tc.spread*1.5*math.Cos(float64(i)*1.3))
+			}
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cen := CellCentres(g)
+			f := nullmodel.New(ix, cen)
+			got := make([]float64, g.Cells())
+			buf := make([]float64, 64*64)
+			for y0 := 0; y0 < g.Height; y0 += 64 {
+				for x0 := 0; x0 < g.Width; x0 += 64 {
+					w, h := min(64, g.Width-x0), min(64, g.Height-y0)
+					f.Distances(x0, y0, w, h, nil, buf)
+					for y := range h {
+						copy(got[(y0+y)*g.Width+x0:], buf[y*w:(y+1)*w])
+					}
+				}
+			}
+			lo, la := make([]float64, g.Width), make([]float64, g.Width)
+			bad := 0
+			for r := range g.Height {
+				cen(r, 0, g.Width, lo, la)
+				for c := range g.Width {
+					_, want := ix.Nearest(la[c], lo[c], 0)
+					if v := got[r*g.Width+c]; v != want && !(math.IsNaN(v) && math.IsNaN(want)) {
+						if bad < 5 {
+							t.Errorf("cell %d,%d: %v, Nearest %v", c, r, v, want)
+						}
+						bad++
+					}
+				}
+			}
+			if bad > 0 {
+				t.Errorf("%d of %d cells differ", bad, g.Cells())
+			}
+		})
+	}
+}
