@@ -31,14 +31,15 @@ func New(ix *geodesy.Index, centres Centres) *Field {
 // nearest-site query.
 const tileSide = 16
 
-// maxCandidates is the largest number of candidate sites measured at every
-// cell of a tile; a tile with more is split in four.
-const maxCandidates = 4
+// maxCandidates is the largest number of candidate sites a tile is measured
+// against (see measure); a tile with more is split in four.
+const maxCandidates = 16
 
 // scratch holds one call's coordinate and candidate buffers.
 type scratch struct {
 	lons, lats []float64
 	cands      []int
+	lb         []float64
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
@@ -57,9 +58,10 @@ var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
 //	s(c, s*) <= s(c, p) + s(p, s*) <= rho + s(p, s_1) <= d_1 + 2 rho,
 //
 // so the sites the index lists within d_1 + 2 rho of c (geodesy.Index.Within)
-// hold every cell's nearest site. With at most 4 of them each cell is
-// measured against those only (usually one); otherwise the tile is split in
-// four, down to single cells, which get a nearest-site query of their own.
+// hold every cell's nearest site. With at most 16 of them the tile's cells
+// are measured against those only (see measure: usually one geodesic per
+// cell); otherwise the tile is split in four, down to single cells, which
+// get a nearest-site query of their own.
 // rho is the largest geodesic distance from c to a corner cell, times 1.02,
 // plus 1 m: corner cells are the farthest on these small convex tiles, and
 // the factor covers the curvature of the tiles' edges in the grid's CRS.
@@ -128,7 +130,7 @@ func (t *tiler) tile(r0, r1, c0, c1 int) {
 	if ok {
 		_, d1 := ix.Nearest(t.lats[ci], t.lons[ci], 0)
 		t.sc.cands = ix.Within(t.lats[ci], t.lons[ci], d1+2*rho, t.sc.cands[:0])
-		if n := len(t.sc.cands); n > 0 && (n <= maxCandidates || (r1-r0 <= 2 && c1-c0 <= 2)) {
+		if n := len(t.sc.cands); n > 0 && n <= maxCandidates {
 			t.measure(r0, r1, c0, c1, t.sc.cands)
 			return
 		}
@@ -168,23 +170,101 @@ func (t *tiler) radius(ci, r0, r1, c0, c1 int) (float64, bool) {
 }
 
 // measure sets the distance of every needed cell of the tile to its
-// smallest distance to the candidate sites.
+// smallest distance to the candidate sites. It walks the tile row by row in
+// alternating directions, so that consecutive cells are neighbours, and
+// keeps an anchor cell p0 with, for every candidate k, a lower bound lb_k on
+// s(p0, k) (exact for the nearest, b). At the next cell p, with
+// L >= s(p0, p) (pathBound), the triangle inequality gives
+//
+//	s(p, b) <= lb_b + L,    s(p, k) >= lb_k - L,
+//
+// so while lb_k - lb_b > 2 L for every other k, b stays strictly nearest
+// and p costs one geodesic. Otherwise p becomes the anchor: b and every k
+// that the bound cannot exclude are measured exactly at p, and the others
+// keep lb_k - L. The first cell measures every candidate. With one
+// candidate every cell costs one geodesic.
 func (t *tiler) measure(r0, r1, c0, c1 int, cands []int) {
 	ix := t.f.ix
+	n := len(cands)
+	lb := t.sc.lb[:0]
+	for range n {
+		lb = append(lb, math.Inf(-1)) // unknown: measured at the first cell
+	}
+	t.sc.lb = lb
+	have := false
+	var p0lat, p0lon, gap float64
+	b := 0 // index in cands of the nearest at the anchor
 	for r := r0; r < r1; r++ {
-		for c := c0; c < c1; c++ {
+		for j := c0; j < c1; j++ {
+			c := j
+			if (r-r0)%2 == 1 {
+				c = c1 - 1 - (j - c0)
+			}
 			i := r*t.w + c
-			if !t.needed(i) || math.IsNaN(t.lats[i]) {
+			lat, lon := t.lats[i], t.lons[i]
+			if !t.needed(i) || math.IsNaN(lat) {
 				continue
 			}
-			best := math.Inf(1)
-			for _, s := range cands {
-				slat, slon := ix.Site(s)
-				best = math.Min(best, geodesy.Distance(t.lats[i], t.lons[i], slat, slon))
+			slat, slon := ix.Site(cands[b])
+			if n == 1 && have {
+				t.dist[i] = geodesy.Distance(lat, lon, slat, slon)
+				continue
 			}
-			t.dist[i] = best
+			var l float64
+			if have {
+				l = pathBound(p0lat, p0lon, lat, lon)
+				if gap > 2*l {
+					t.dist[i] = geodesy.Distance(lat, lon, slat, slon)
+					continue
+				}
+			}
+			// New anchor at p: measure what the bounds cannot exclude.
+			db := lb[b] + l // upper bound on s(p, b)
+			for k := range n {
+				if k == b && have || !have || lb[k]-l <= db {
+					klat, klon := ix.Site(cands[k])
+					lb[k] = geodesy.Distance(lat, lon, klat, klon)
+				} else {
+					lb[k] -= l
+				}
+			}
+			b = 0
+			for k := 1; k < n; k++ {
+				if lb[k] < lb[b] {
+					b = k
+				}
+			}
+			gap = math.Inf(1)
+			for k := range n {
+				if k != b {
+					gap = math.Min(gap, lb[k]-lb[b])
+				}
+			}
+			t.dist[i] = lb[b]
+			have, p0lat, p0lon = true, lat, lon
 		}
 	}
+}
+
+// pathBound returns an upper bound (m) on the geodesic distance between two
+// points (degrees): the length of the path along the parallel of the first
+// point to the second's meridian, N(phi1) cos(phi1) |dlambda|, then along
+// that meridian, at most M_max |dphi| with M_max the largest meridian radius
+// of curvature between the two latitudes (M grows with |phi|), plus 1e-6 of
+// the total and 1 mm for rounding. Any path is at least as long as the
+// geodesic.
+func pathBound(lat1, lon1, lat2, lon2 float64) float64 {
+	const rad = math.Pi / 180
+	e2 := geodesy.Flattening * (2 - geodesy.Flattening)
+	dlon := math.Abs(math.Remainder(lon2-lon1, 360)) * rad
+	s1 := math.Sin(lat1 * rad)
+	w1 := 1 - e2*s1*s1
+	n1 := geodesy.SemiMajor / math.Sqrt(w1)
+	sm := math.Sin(math.Max(math.Abs(lat1), math.Abs(lat2)) * rad)
+	wm := 1 - e2*sm*sm
+	mMax := geodesy.SemiMajor * (1 - e2) / (wm * math.Sqrt(wm))
+	l := n1*math.Cos(lat1*rad)*dlon + mMax*math.Abs(lat2-lat1)*rad
+	return l*(1+1e-6) + 1e-3
 }
 
 // FarthestBound returns an upper bound on the distance (m) from the centre of
