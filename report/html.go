@@ -178,32 +178,60 @@ func writeAnalysisTables(p *page, r *Results) {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	// Spread and slope.
-	p.s(`<h3>Spread across extents</h3><p>Range and sample SD (divisor n−1) across the scored extents, beside the median within-extent bootstrap SD; slope: ordinary least squares against log2(area), i.e. change per doubling of the extent area, with a 95% confidence interval from Student's t.</p>`)
+	// Verdicts with every paired difference from the base extent.
+	p.f(`<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on %s, on the test points both hold (paired). AUC: from each test point's placement (share of the extent's area below it, ties half), standard error sqrt(Σ(D−mean D)²/(n(n−1))) and a normal 95%% interval; the cells are the whole population of the extent, not a sample. Other metrics: %d full-size resamples of the test points, the same for every model and extent, and the 2.5–97.5 percentiles of the resampled differences. Robust: every interval inside ± the tolerance; extent-sensitive: at least one interval wholly outside; otherwise undetermined. The test-set shift is how much the change of test points moved the score on top of the paired difference.</p>`,
+		htmlEscape(s.BaseExtent), r.Settings.PairedResamples)
+	p.s(`<ul class="sentences">`)
+	for _, mv := range s.ModelVerdicts {
+		p.f(`<li><span class="badge %s">%s</span> %s</li>`, verdictClass(mv.Verdict), htmlEscape(mv.Verdict), htmlEscape(mv.Sentence))
+	}
+	p.s("</ul>")
 	var rows [][]cell
+	for _, mv := range s.ModelVerdicts {
+		for _, d := range mv.Diffs {
+			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
+			if !d.Defined {
+				row = append(row, dash, dash, dash, dash, tc("undefined"))
+				rows = append(rows, row)
+				continue
+			}
+			row = append(row, nc(d.Diff, 4), cell{text: f4(d.Low) + " to " + f4(d.High), num: d.Low, isN: true, cls: "n"},
+				tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc(d.Position))
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-differences", "", []string{"metric", "model", "extent", "test points", "common", "difference", "95% interval", "method", "test-set shift", "against tolerance"}, rows)
+
+	// Model comparisons.
+	if len(s.Rankings) > 0 {
+		p.s(`<h3>Models compared extent by extent</h3><p>Paired differences between two models on the same extent and test points; "beyond noise" means the 95% interval excludes 0.</p><ul class="sentences">`)
+		rows = nil
+		for _, rk := range s.Rankings {
+			p.f("<li>%s</li>", htmlEscape(rk.Sentence))
+			rows = append(rows, []cell{tc(label[rk.Metric]), tc(rk.Model + " − " + rk.Other), ic(rk.Extents), ic(rk.Better), ic(rk.Worse), ic(rk.WithinNoise)})
+		}
+		p.s("</ul>")
+		p.table("tbl-model-differences", "", []string{"metric", "models", "extents", "better beyond noise", "worse beyond noise", "within noise"}, rows)
+	}
+
+	// Spread (description).
+	p.s(`<h3>Spread across extents</h3><p>A description of the chosen family: range and SD (divisor n−1) of each score across the scored extents. The extents are nested or overlapping and share their test points, so these are not a sample of possible extents.</p>`)
+	rows = nil
 	for _, sp := range s.Spreads {
 		row := []cell{tc(label[sp.Metric]), tc(sp.Model), ic(sp.N)}
 		if sp.N == 0 {
-			row = append(row, dash, dash, dash, dash, dash, dash, dash, dash, dash, tc(sp.Verdict))
+			row = append(row, dash, dash, dash, dash)
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3))
-		row = append(row, defNum(sp.SD, sp.SDDefined, 3), defNum(sp.BootSDMedian, sp.BootSDDefined, 3), defNum(sp.RangeOverBootSD, sp.RangeOverBootSDDefined, 1))
-		row = append(row, defNum(sp.Slope.PerDoubling, sp.Slope.Defined, 4))
-		if sp.Slope.CIDefined {
-			row = append(row, cell{text: f4(sp.Slope.CILow) + " to " + f4(sp.Slope.CIHigh), num: sp.Slope.CILow, isN: true, cls: "n"})
-		} else {
-			row = append(row, dash)
-		}
-		row = append(row, defNum(sp.Slope.R2, sp.Slope.R2Defined, 2), tc(sp.Verdict))
+		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3), defNum(sp.SD, sp.SDDefined, 3))
 		rows = append(rows, row)
 	}
-	p.table("tbl-spread", "", []string{"metric", "model", "n", "min", "max", "range", "SD", "median boot SD", "range / boot SD", "per doubling", "95% CI", "r²", "verdict"}, rows)
+	p.table("tbl-spread", "", []string{"metric", "model", "n", "min", "max", "range", "SD"}, rows)
 
 	// Decomposition.
 	if len(s.Decompositions) > 0 {
-		p.s(`<h3>Extent or model?</h3><p>Sum of squares of each metric over the models × extents table (extents scored for every model), split into extent and model main effects and the non-additive rest (one value per cell, so the rest is interaction plus noise). Kendall's W: agreement of the model rankings across extents (1 = the same ranking everywhere), with tie correction.</p>`)
+		p.s(`<h3>Sums of squares of the models × extents table</h3><p>A property of the chosen family, not a finding about the models: each metric's sum of squares over the extents scored for every model, split into extent and model main effects and the non-additive rest; another family of extents gives another split. Kendall's W describes how far the extents agree on the order of the models (1 = the same order everywhere, tie-corrected); no test is attached because the extents are not independent.</p>`)
 		rows = nil
 		for _, d := range s.Decompositions {
 			row := []cell{tc(label[d.Metric]), ic(len(d.Extents))}
@@ -213,17 +241,12 @@ func writeAnalysisTables(p *page, r *Results) {
 				row = append(row, dash, dash, dash)
 			}
 			row = append(row, defNum(d.KendallW, d.KendallWDefined, 3))
-			if d.KendallWDefined {
-				row = append(row, cell{text: fmtP(d.PValue), num: d.PValue, isN: true, cls: "n"})
-			} else {
-				row = append(row, dash)
-			}
 			row = append(row, tc(d.BaseExtent), tc(strings.Join(d.DiffersFromBase, ", ")))
 			rows = append(rows, row)
 		}
-		p.table("tbl-decomposition", "", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "p (chi-square)", "base extent", "ranking differs on"}, rows)
+		p.table("tbl-decomposition", "", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "base extent", "order differs on"}, rows)
 		if d := s.findDecomposition("auc"); d != nil && len(d.Rankings) > 0 {
-			p.s(`<h3>Model ranking by AUC on each extent</h3>`)
+			p.s(`<h3>Order of the models by AUC on each extent</h3><p>Point estimates only; the paired model differences above say whether an order is beyond noise.</p>`)
 			rows = nil
 			for _, er := range d.Rankings {
 				row := []cell{tc(er.Extent)}
@@ -267,6 +290,12 @@ func writeAnalysisTables(p *page, r *Results) {
 			}
 		}
 		p.table("tbl-chains", "", []string{"chain", "model", "step", "ring area km²", "ring AUC", "AUC before", "AUC after", "change", "share %"}, rows)
+		rows = nil
+		for _, c := range s.Chains {
+			rows = append(rows, []cell{tc(c.Chain), tc(c.Model), ic(c.Slope.N), defNum(c.Slope.PerDoubling, c.Slope.Defined, 4), defNum(c.Slope.R2, c.Slope.R2Defined, 2)})
+		}
+		p.s(`<p>Slope of AUC against log2(area) along each chain: a description of the chain (its members are nested and share test points), with no interval.</p>`)
+		p.table("tbl-chain-slopes", "", []string{"chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
 	}
 
 	// Truncation.
@@ -370,11 +399,15 @@ func writeScoreTable(p *page, r *Results) {
 					pr = &sc.PartialROC[i]
 				}
 			}
-			if pr == nil || (pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-				row = append(row, dash, dash, dash)
+			if pr == nil || !pr.Defined || (pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
+				ratio := dash
+				if pr != nil && !pr.Defined {
+					ratio = tc("undefined")
+				}
+				row = append(row, ratio, dash, dash)
 				continue
 			}
-			row = append(row, nc(pr.Ratio, 3), cell{text: f3(pr.CILow) + "–" + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"}, cell{text: fmtP(pr.PValue), num: pr.PValue, isN: true, cls: "n"})
+			row = append(row, nc(pr.Ratio, 3), cell{text: f3(pr.CILow) + "–" + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"}, cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
 		}
 		for _, t := range ths {
 			var th *Threshold
@@ -446,8 +479,11 @@ func writeSettings(p *page, r *Results) {
 		{tc("ecoregion minimum points"), tc(strconv.Itoa(st.EcoregionMinPoints))},
 		{tc("ecoregion field"), tc(st.EcoregionField)},
 		{tc("partial ROC E"), tc(fl(st.E))},
-		{tc("bootstrap iterations"), tc(strconv.Itoa(st.Iterations))},
-		{tc("resample fraction"), tc(fmtG(st.ResampleFraction))},
+		{tc("bootstrap iterations (published partial ROC bootstrap)"), tc(strconv.Itoa(st.Iterations))},
+		{tc("resample fraction (published partial ROC bootstrap)"), tc(fmtG(st.ResampleFraction))},
+		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
+		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},
 		{tc("fixed thresholds"), tc(fl(st.FixedThresholds))},
 		{tc("thin to one record per cell"), tc(yesNo(st.ThinPerCell))},
 		{tc("Boyce window"), tc(fmtG(st.BoyceWindow))},
@@ -457,8 +493,8 @@ func writeSettings(p *page, r *Results) {
 		{tc("cell areas"), tc(r.Grid.CellAreaNote)},
 		{tc("points"), tc(fmt.Sprintf("%d train, %d test, %d thinned, %d outside raster, %d on no data",
 			r.PointCounts.Train, r.PointCounts.Test, r.PointCounts.Thinned, r.PointCounts.OutsideRaster, r.PointCounts.NoData))},
-		{tc("analysis cut-offs (our choices)"), tc(fmt.Sprintf("robust if range ≤ %g × median bootstrap SD, else ≤ %g; floor flag ≥ %s of area; tail flag > %g of the area axis; near = within %g cells, warn above %s",
-			RobustBootFactor, RobustAbsRange, pct(FloorShareFlag), TailJumpFlag, NearCells, pct(NearShareWarn)))},
+		{tc("analysis cut-offs (our choices)"), tc(fmt.Sprintf("floor flag ≥ %s of area; tie-tail flag > %g of the area axis; near = within %g cells, warn above %s",
+			pct(FloorShareFlag), TailJumpFlag, NearCells, pct(NearShareWarn)))},
 	}
 	p.table("tbl-settings", "", []string{"setting", "value"}, rows)
 	var in [][]cell
@@ -553,7 +589,7 @@ func teachData(r *Results) ([]byte, error) {
 			}
 			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
 			for _, pr := range sc.PartialROC {
-				if math.Abs(pr.E-pl.E) <= 1e-12 && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
+				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
 					c.PROC, c.PROCLow, c.PROCHigh, c.PROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
 				}
 			}

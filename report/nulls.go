@@ -63,7 +63,7 @@ func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
 		if sc.Model != null || !sc.Scored || !usable {
 			continue
 		}
-		if v, has, _, _, _, _ := metricValue(m, sc, r.Settings.Iterations); has {
+		if v, has, _, _, _, _ := metricValue(m, sc); has {
 			xys = append(xys, plotter.XY{X: area, Y: v})
 		}
 	}

@@ -169,16 +169,23 @@ func TestMethodsText(t *testing.T) {
 	want := []string{
 		"## Methods", "## Reply to a reviewer",
 		r.Software.Name + " " + r.Software.Version,
-		"E = 0.05 and 0.1", strconv.Itoa(r.Settings.Iterations) + " bootstrap", "50% of the test records",
+		"E = 0.05 and 0.1", "published bootstrap of " + strconv.Itoa(r.Settings.Iterations) + " resamples", "50% of the test records",
 		"seed " + strconv.FormatUint(r.Seed, 10),
 		"base (study region polygon; " + fmtArea(r.Extents[0].AreaKm2) + " km²)",
 		"AUC of good ranged " + f3(auc.Min) + "–" + f3(auc.Max),
-		signed3(auc.Slope.PerDoubling) + " per doubling",
-		"evaluation aids",
+		"evaluation aids", "evaluation extents",
+		"Hanley & McNeil 1982", "Anderson et al. 2003", "DeLong et al. (1988)", "Hirzel et al. 2006", "Peterson et al. 2008",
+		"presences' own cells are part of that background", "x_E interpolated linearly", "4096-bin histogram",
+		strconv.Itoa(r.Settings.PairedResamples) + " full-size resamples", "AUC ±0.02", "differ in their test records",
 	}
 	for _, w := range want {
 		if !strings.Contains(md, w) {
 			t.Errorf("methods.md lacks %q", w)
+		}
+	}
+	for _, bad := range []string{"calibration extent", "same test records", "chi-square"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("methods.md says %q", bad)
 		}
 	}
 }
@@ -215,6 +222,7 @@ func TestFormatting(t *testing.T) {
 		{areaRange(28232, 231212), "from 28.2 to 231 thousand km²"},
 		{areaRange(1200, 40000), "from 1.2 to 40 thousand km²"},
 		{areaRange(120, 9800), "from 120 to 9,800 km²"},
+		{areaRange(391788.6, 3251635.3), "from 392 to 3,252 thousand km²"},
 		{signed3(0.0312), "+0.031"},
 		{signed3(-0.0004), "+0.000"},
 		{pct(0.714), "71%"},

@@ -41,8 +41,8 @@ func writeFloat64Raster(t *testing.T, path string, g *extent.Grid, vals []float6
 // every extent: value range, AUCs, the full-sample partial ROC ratio, every
 // threshold test, rings and omission lists. Two things differ by design and
 // are not compared: the bootstrap (its stream is seeded by the model's
-// name) and the Boyce index (its fine histogram spans the GeoTIFF's
-// approximate statistics for a raster, the distance bound for the null).
+// name) and the Boyce index (its fine histogram spans the exact value range
+// for a raster, [-FarthestBound, 0] for the null).
 // It also checks the roles, that the sensitivity analysis leaves both nulls
 // out, and the sorting-bias ratios against a brute-force computation from
 // the raw cells (Distance to every training point, true cell areas).

@@ -116,9 +116,16 @@ func scoresCSV(r *report.Results) []byte {
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
 		row("auc_train", "", "", sc.AUCTrain)
 		row("auc_boot_sd", "", "", sc.AUCBootSD)
+		row("auc_se", "", "", sc.AUCSE)
+		row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
 		for _, p := range sc.PartialROC {
 			e := ftoa(p.E)
-			row("partial_roc_ratio", e, "", p.Ratio)
+			if !p.Defined {
+				// Undefined ratio (see results.json partial_roc): no value row.
+				row("partial_roc_undefined", e, "", 1)
+			} else {
+				row("partial_roc_ratio", e, "", p.Ratio)
+			}
 			row("partial_roc_ratio_mean", e, "", p.RatioMean)
 			row("partial_roc_ci_low", e, "", p.CILow)
 			row("partial_roc_ci_high", e, "", p.CIHigh)

@@ -43,6 +43,8 @@ type RunOptions struct {
 	NoThin             bool
 	MembershipTIFF     bool
 	Workers            int
+	// Tolerances of the equivalence verdicts (report.Settings).
+	ToleranceAUC, TolerancePartialROC, ToleranceOmission, ToleranceBoyce float64
 
 	// ExtentsOnly stops after building and exporting the family.
 	ExtentsOnly bool
@@ -68,6 +70,11 @@ func defaultRunOptions() RunOptions {
 		Fraction:           0.5,
 		Seed:               1,
 		Out:                "areasweep-out",
+
+		ToleranceAUC:        report.DefaultToleranceAUC,
+		TolerancePartialROC: report.DefaultTolerancePartialROC,
+		ToleranceOmission:   report.DefaultToleranceOmission,
+		ToleranceBoyce:      report.DefaultToleranceBoyce,
 	}
 }
 
@@ -130,7 +137,7 @@ func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
 	f.BoolVar(&o.PointBuffersAll, "point-buffers-all", false, "draw point buffers around all points, not only training points")
 	f.Float64SliceVar(&o.HullBuffers, "hull-buffers", o.HullBuffers, "buffers in km of the training points' convex hull (0 = the hull itself)")
 	f.Float64SliceVar(&o.E, "e", o.E, "allowable omission E for partial ROC, each in (0,1)")
-	f.IntVar(&o.Iterations, "iterations", o.Iterations, "bootstrap iterations for partial ROC")
+	f.IntVar(&o.Iterations, "iterations", o.Iterations, "resamples B: of the published partial ROC bootstrap and of the paired full-size resamples")
 	f.Float64Var(&o.Fraction, "fraction", o.Fraction, "share of test points drawn (with replacement) in each bootstrap iteration, in (0,1]")
 	f.Float64SliceVar(&o.Thresholds, "thresholds", nil, "fixed suitability thresholds to test besides the training-presence ones")
 	f.Uint64Var(&o.Seed, "seed", o.Seed, "random seed of the bootstrap")
@@ -140,6 +147,10 @@ func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
 	f.BoolVar(&o.NoThin, "no-thin", false, "keep several presences of one role in one cell (default: one per cell)")
 	f.BoolVar(&o.MembershipTIFF, "membership-tif", false, "also write extents.tif, one band per extent")
 	f.IntVar(&o.Workers, "workers", 0, "scoring goroutines (default: all cores); results do not depend on it")
+	f.Float64Var(&o.ToleranceAUC, "tolerance-auc", o.ToleranceAUC, "AUC difference from the base extent you treat as negligible (our default)")
+	f.Float64Var(&o.TolerancePartialROC, "tolerance-partial-roc", o.TolerancePartialROC, "partial ROC ratio difference you treat as negligible (our default)")
+	f.Float64Var(&o.ToleranceOmission, "tolerance-omission", o.ToleranceOmission, "omission-rate and predicted-area difference you treat as negligible (our default)")
+	f.Float64Var(&o.ToleranceBoyce, "tolerance-boyce", o.ToleranceBoyce, "Boyce index difference you treat as negligible (our default)")
 }
 
 // resolve merges the study file under the flags and validates the result.
@@ -209,6 +220,15 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	if st.Seed != nil && set("seed") {
 		o.Seed = *st.Seed
 	}
+	float := func(name string, dst *float64, v *float64) {
+		if v != nil && set(name) {
+			*dst = *v
+		}
+	}
+	float("tolerance-auc", &o.ToleranceAUC, st.ToleranceAUC)
+	float("tolerance-partial-roc", &o.TolerancePartialROC, st.TolerancePartialROC)
+	float("tolerance-omission", &o.ToleranceOmission, st.ToleranceOmission)
+	float("tolerance-boyce", &o.ToleranceBoyce, st.ToleranceBoyce)
 }
 
 // validate checks the settings that need no file access.
@@ -289,6 +309,14 @@ func (o *RunOptions) validate() error {
 	for _, d := range o.HullBuffers {
 		if d < 0 {
 			return fmt.Errorf("--hull-buffers value %g must be 0 (the hull) or positive (km)", d)
+		}
+	}
+	for _, t := range []struct {
+		name string
+		v    float64
+	}{{"tolerance-auc", o.ToleranceAUC}, {"tolerance-partial-roc", o.TolerancePartialROC}, {"tolerance-omission", o.ToleranceOmission}, {"tolerance-boyce", o.ToleranceBoyce}} {
+		if !(t.v > 0) || math.IsInf(t.v, 0) {
+			return fmt.Errorf("--%s is %g; give a positive difference you would treat as negligible", t.name, t.v)
 		}
 	}
 	if o.Out == "" {

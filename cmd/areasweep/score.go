@@ -47,7 +47,9 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		return badInput(err)
 	}
 	defer r.Close()
-	lo, hi, err := r.ApproxRange()
+	// The fine histogram (Boyce) spans the exact value range, so that the
+	// same pixels give the same index whatever the file layout.
+	lo, hi, _, err := r.ExactRange()
 	if err != nil {
 		return badInput(err)
 	}
@@ -152,6 +154,16 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 		return out
 	}
 	nTest := len(mp.test)
+	gidx := s.globalTest()
+	testIDs := func(k int) (global, ids []int) {
+		bit := uint64(1) << uint(k)
+		for j, p := range s.points {
+			if p.Status == "scored" && p.Role == "test" && valid[j] && fam.Mask[s.cell[j]]&bit != 0 {
+				global, ids = append(global, gidx[j]), append(ids, p.ID)
+			}
+		}
+		return global, ids
+	}
 	for k, mem := range fam.Members {
 		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 		switch mem.Status {
@@ -182,10 +194,18 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 			continue
 		}
 		sc.Scored = true
-		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCBootSD = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCBootSD
+		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCSE
+		sc.AUCUnweightedSEDeLong = math.Sqrt(out.AUCUnweightedVarDeLong)
+		global, ids := testIDs(k)
+		sc.TestPointIDs, sc.Placements, sc.PlacementsUnweighted = ids, out.Placements, out.PlacementsUnweighted
 		for _, p := range out.PartialROC {
-			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
+			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
+				TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
+				Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
 				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
+		}
+		if sc.AUCBootSD, err = s.evaluator(m.Name, mem.ID, accs[k], test, global, out, set); err != nil {
+			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
 		}
 		for _, t := range out.Thresholds {
 			sc.Thresholds = append(sc.Thresholds, report.Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,
@@ -201,9 +221,9 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 		}
 		s.res.Curves = append(s.res.Curves, cv)
 		s.res.Scores = append(s.res.Scores, sc)
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
-	s.logf("%s: scores on %d extents (bootstrap included) in %.1f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: scores on %d extents (bootstraps included) in %.1f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, accs, presence); err != nil {
 		return err
 	}
@@ -211,11 +231,11 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	return nil
 }
 
-func firstRatio(sc report.Score) float64 {
-	if len(sc.PartialROC) == 0 {
-		return 0
+func firstRatio(sc report.Score) string {
+	if len(sc.PartialROC) == 0 || !sc.PartialROC[0].Defined {
+		return "undefined"
 	}
-	return sc.PartialROC[0].Ratio
+	return fmt.Sprintf("%.4f", sc.PartialROC[0].Ratio)
 }
 
 // aucOf is the area-weighted Mann-Whitney AUC of presence values against
@@ -371,6 +391,9 @@ func (s *session) finishResults() error {
 	}
 	if s.res.Curves == nil {
 		s.res.Curves = []report.Curve{}
+	}
+	if err := s.paired(); err != nil {
+		return err
 	}
 	return report.Analyze(s.res)
 }

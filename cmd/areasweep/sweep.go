@@ -19,6 +19,7 @@ import (
 	"areasweep/cmd/inputs"
 	"areasweep/cmd/pass"
 	"areasweep/extent"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
@@ -43,6 +44,9 @@ type session struct {
 	stage  string
 	valid  extent.Valid // nil until known: the family is then unclipped
 	nWarn  int          // family warnings already reported
+	// evals holds the paired-resample evaluator of every scored model x
+	// extent (paired.go).
+	evals map[[2]string]*metrics.Evaluator
 }
 
 // recordedPath is the path written into results.json for an input: as
@@ -535,7 +539,8 @@ func (s *session) buildFamily() error {
 		RegionBuffersKm: nonNil(o.RegionBuffers), PointBuffersKm: nonNil(spec.PointBuffersKm), PointBufferAll: o.PointBuffersAll,
 		HullBuffersKm: nonNil(spec.HullBuffersKm), EcoregionMinPoints: o.EcoregionMinPoints, EcoregionField: o.EcoregionField,
 		E: nonNil(o.E), Iterations: o.Iterations, ResampleFraction: o.Fraction, FixedThresholds: nonNil(o.Thresholds),
-		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100,
+		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100, PairedResamples: o.Iterations,
+		ToleranceAUC: o.ToleranceAUC, TolerancePartialROC: o.TolerancePartialROC, ToleranceOmission: o.ToleranceOmission, ToleranceBoyce: o.ToleranceBoyce,
 		EcoregionClip: o.EcoregionClip, OccurrencesCRS: o.OccurrencesCRS, Extra: []string{},
 	}
 	for _, m := range o.Extra {

@@ -46,6 +46,11 @@ type Study struct {
 	MembershipTIFF     *bool     `yaml:"membership-tif"`
 	Null               []string  `yaml:"null"` // "NAME=PATH"
 	NoDistanceNull     *bool     `yaml:"no-distance-null"`
+	// Tolerances of the equivalence verdicts.
+	ToleranceAUC        *float64 `yaml:"tolerance-auc"`
+	TolerancePartialROC *float64 `yaml:"tolerance-partial-roc"`
+	ToleranceOmission   *float64 `yaml:"tolerance-omission"`
+	ToleranceBoyce      *float64 `yaml:"tolerance-boyce"`
 }
 
 // studyKeys lists the accepted keys in the order of the Study fields.
@@ -54,6 +59,7 @@ var studyKeys = []string{
 	"ecoregion-min-points", "ecoregion-clip", "extra", "region-buffers", "point-buffers",
 	"point-buffers-all", "hull-buffers", "e", "iterations", "fraction", "thresholds", "seed",
 	"out", "no-thin", "membership-tif", "null", "no-distance-null",
+	"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce",
 }
 
 // StudyKeys returns the keys a study file may contain, which are also the
@@ -291,6 +297,14 @@ func (s *Study) set(key string, v *yaml.Node, dir string) error {
 		s.Thresholds, err = floatList(key, v)
 	case "fraction":
 		s.Fraction, err = floatValue(key, v)
+	case "tolerance-auc":
+		s.ToleranceAUC, err = floatValue(key, v)
+	case "tolerance-partial-roc":
+		s.TolerancePartialROC, err = floatValue(key, v)
+	case "tolerance-omission":
+		s.ToleranceOmission, err = floatValue(key, v)
+	case "tolerance-boyce":
+		s.ToleranceBoyce, err = floatValue(key, v)
 	case "seed":
 		s.Seed, err = uintValue(key, v)
 	default:
@@ -635,6 +649,12 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 		}
 		return []string{strconv.Itoa(*p)}, true
 	}
+	float := func(p *float64) ([]string, bool) {
+		if p == nil {
+			return nil, false
+		}
+		return []string{f(*p)}, true
+	}
 	list := func(l []float64) ([]string, bool) {
 		if l == nil {
 			return nil, false
@@ -689,10 +709,15 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 	case "thresholds":
 		return list(s.Thresholds)
 	case "fraction":
-		if s.Fraction == nil {
-			return nil, false
-		}
-		return []string{f(*s.Fraction)}, true
+		return float(s.Fraction)
+	case "tolerance-auc":
+		return float(s.ToleranceAUC)
+	case "tolerance-partial-roc":
+		return float(s.TolerancePartialROC)
+	case "tolerance-omission":
+		return float(s.ToleranceOmission)
+	case "tolerance-boyce":
+		return float(s.ToleranceBoyce)
 	case "seed":
 		if s.Seed == nil {
 			return nil, false

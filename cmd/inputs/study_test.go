@@ -46,6 +46,10 @@ seed: 18446744073709551615
 out: results
 no-thin: true
 membership-tif: false
+tolerance-auc: 0.03
+tolerance-partial-roc: 0.1
+tolerance-omission: 0.04
+tolerance-boyce: 0.2
 `
 
 func fullStudyWant(dir string) *Study {
@@ -74,6 +78,11 @@ func fullStudyWant(dir string) *Study {
 		Out:                ptr(j("results")),
 		NoThin:             ptr(true),
 		MembershipTIFF:     ptr(false),
+
+		ToleranceAUC:        ptr(0.03),
+		TolerancePartialROC: ptr(0.1),
+		ToleranceOmission:   ptr(0.04),
+		ToleranceBoyce:      ptr(0.2),
 	}
 }
 
@@ -402,6 +411,9 @@ func newFlags() *cobra.Command {
 	}
 	fs.Float64Slice("thresholds", []float64{0}, "")
 	fs.Float64("fraction", 0.5, "")
+	for _, k := range []string{"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce"} {
+		fs.Float64(k, 0.01, "")
+	}
 	fs.Uint64("seed", 1, "")
 	return cmd
 }
@@ -437,6 +449,9 @@ func TestApply(t *testing.T) {
 			uint64(18446744073709551615), "/b/region.gpkg", "EPSG:32633", 3)
 		if got != want {
 			t.Fatalf("flags after Apply\n got %s\nwant %s", got, want)
+		}
+		if tb, _ := fs.GetFloat64("tolerance-boyce"); tb != 0.2 {
+			t.Errorf("tolerance-boyce after Apply = %v, want 0.2 from the study", tb)
 		}
 		// The list text round-trips through ParseFloatList.
 		l, err := ParseFloatList("region-buffers", rb)
