@@ -89,6 +89,17 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 		p.f(`<li><span class="badge %s">%s</span> %s</li>`, verdictClass(v.Verdict), htmlEscape(v.Verdict), htmlEscape(v.Sentence))
 	}
 	p.s("</ul>")
+	// Models against the nulls.
+	if rows := aboveNullRows(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null per extent</h3><ul class="sentences">`)
+		for _, an := range s.AboveNull {
+			p.f("<li>%s</li>", htmlEscape(an.Sentence))
+		}
+		p.s("</ul>")
+		p.f("<p>%s</p>", htmlEscape(aboveNullNote))
+		p.table("tbl-above-null", "", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+	}
+
 	nw := len(r.Warnings) + len(s.Warnings)
 	if nw > 0 {
 		p.f(`<p class="warnnote">%d warning%s: see <a href="#warnings">Warnings</a>.</p>`, nw, plural(nw))

@@ -95,9 +95,8 @@ const sortingBiasNote = "Spatial sorting bias (Hijmans 2012, Ecology 93:679-688)
 
 // nullSentences describes the nulls and the sorting bias for methods.md:
 // each null's AUC on the base extent beside the models', its range across
-// extents, and the range of the sorting-bias ratio. Descriptions only: the
-// paired difference of a model and a null, with its interval, is not part
-// of this text.
+// extents, the paired difference of each model and null with its interval
+// (Sensitivity.AboveNull) and the range of the sorting-bias ratio.
 func nullSentences(r *Results) string {
 	var b strings.Builder
 	auc := func(model, ext string) (float64, bool) {
@@ -140,6 +139,11 @@ func nullSentences(r *Results) string {
 			}
 		}
 		b.WriteString(".")
+	}
+	if r.Sensitivity != nil {
+		for _, an := range r.Sensitivity.AboveNull {
+			b.WriteString(" " + an.Sentence)
+		}
 	}
 	lo, hi, k := math.Inf(1), math.Inf(-1), 0
 	for _, e := range r.Extents {

@@ -66,6 +66,11 @@ type Sensitivity struct {
 	// Rankings compares every pair of models per metric by their paired
 	// differences on each extent; empty with fewer than two models.
 	Rankings []ModelRanking `json:"rankings"`
+	// AboveNull compares every model with every null, per metric (AUC and
+	// the partial ROC ratio at each E) and scored extent: the paired
+	// difference model minus null with its 95% interval. Empty without
+	// nulls.
+	AboveNull []AboveNull `json:"above_null"`
 	// Decompositions describes, per metric, how the spread of the models x
 	// extents table splits (a property of the chosen family) and how far
 	// the extents agree on the order of the models; empty with fewer than
@@ -446,6 +451,7 @@ func Analyze(r *Results) error {
 		ModelVerdicts:  []ModelVerdict{},
 		Verdicts:       []Verdict{},
 		Rankings:       []ModelRanking{},
+		AboveNull:      []AboveNull{},
 		Decompositions: []Decomposition{},
 		Chains:         []ChainSummary{},
 		Truncation:     []TruncationCheck{},
@@ -475,6 +481,7 @@ func Analyze(r *Results) error {
 			s.Decompositions = append(s.Decompositions, a.decompose(m))
 		}
 	}
+	s.AboveNull = a.aboveNull(s.ScoredExtents)
 	chains, w := a.chains()
 	s.Chains = chains
 	s.Warnings = append(s.Warnings, w...)

@@ -155,6 +155,30 @@ func scoresCSV(r *report.Results) []byte {
 			row("sorting_bias_background_median_km", "", "", sb.BackgroundMedianKm)
 		}
 	}
+	// Model minus null on each extent (results.json paired records of kind
+	// "null"): the difference, its SE and 95% interval, on the row of the
+	// model, with the null's name in the metric.
+	for _, p := range r.Paired {
+		if p.Kind != report.PairedKindNull || !p.Defined {
+			continue
+		}
+		ex := kinds[p.Extent]
+		var metric, e string
+		switch {
+		case p.Metric == "auc":
+			metric = "auc_minus_" + p.OtherModel
+		case strings.HasPrefix(p.Metric, "partial_roc_e"):
+			metric, e = "partial_roc_ratio_minus_"+p.OtherModel, strings.TrimPrefix(p.Metric, "partial_roc_e")
+		default:
+			continue
+		}
+		for _, v := range []struct {
+			suffix string
+			v      float64
+		}{{"", p.Diff}, {"_se", p.SE}, {"_ci_low", p.Low}, {"_ci_high", p.High}} {
+			w.Write([]string{p.Model, p.Extent, ex.Kind, ftoa(ex.AreaKm2), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
+		}
+	}
 	w.Flush()
 	return buf.Bytes()
 }
