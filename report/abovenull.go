@@ -159,17 +159,18 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	var b strings.Builder
 	null := modelLabel(r, an.Null)
 	g := an.gap(an.BaseExtent)
+	score := metricPhrase(m)
 	switch {
 	case g == nil || !g.Defined:
-		fmt.Fprintf(&b, "%s of %s minus %s could not be formed on %s.", m.Label, an.Model, null, an.BaseExtent)
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, m.Label, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
 	case an.BaseReading == ReadingBelow:
-		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, m.Label, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
 	default:
-		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, m.Label, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
 	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
@@ -178,6 +179,15 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below)
 	}
 	return b.String()
+}
+
+// metricPhrase names metric m inside a sentence: "AUC", "the partial ROC
+// ratio at E = 0.05".
+func metricPhrase(m MetricInfo) string {
+	if m.Kind == "partial_roc" {
+		return "the partial ROC ratio at E = " + fmtG(m.E)
+	}
+	return m.Label
 }
 
 // aboveNullHeadline is the headline's sentence on the nulls: AUC only, one

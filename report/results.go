@@ -20,7 +20,10 @@ import (
 //   - models may be nulls (Model.Role), scored like models (placements and
 //     paired records included) but kept out of every ranking and of the
 //     sensitivity analysis; extents carry the spatial sorting bias;
-//     settings.distance_null.
+//     settings.distance_null;
+//
+// and adds model above null: paired records of kind "null" (every model
+// minus every null per extent) and sensitivity.above_null.
 const SchemaVersion = 3
 
 // Results is the whole of one run as written to results.json. Every slice is
@@ -385,8 +388,9 @@ type Preview struct {
 
 // Paired is one paired difference A - B on the test points both sides
 // share: two extents of one model (Kind "extent": Extent minus
-// OtherExtent, the base extent) or two models on one extent (Kind "model":
-// Model minus OtherModel).
+// OtherExtent, the base extent), two models on one extent (Kind "model":
+// Model minus OtherModel) or a model and a null on one extent (Kind
+// PairedKindNull: Model minus the null OtherModel).
 //
 // Method "placements": AUC differences from per-point placements, SE =
 // sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a normal 95% interval.
