@@ -53,6 +53,11 @@ func (s *session) scoreDistanceNull(i int) error {
 		*bp = d
 		distPool.Put(bp)
 	}
+	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training
+	// points and the grid alone, so the same inputs give the same null
+	// Boyce index (the null has no file layout). An exact range would cost
+	// a second distance pass; a GeoTIFF copy of the null spans its exact
+	// range instead, so only its Boyce index may differ.
 	m := report.Model{Name: report.DistanceNullName, Role: report.RoleNull, NullKind: report.NullDistance}
 	if err := s.scoreSource(i, m, pass.NewVirtual(g, field), -math.Max(far, 1), 0, rows); err != nil {
 		return err

@@ -38,10 +38,11 @@ func writeFloat64Raster(t *testing.T, path string, g *extent.Grid, vals []float6
 // defining property: the distance-only null's values, computed here on the
 // study grid from the scored training points and written as a Float64
 // GeoTIFF given with --null, score exactly what the virtual null scores on
-// every extent: value range, AUCs, the full-sample partial ROC ratio, every
-// threshold test, rings and omission lists. Two things differ by design and
-// are not compared: the bootstrap (its stream is seeded by the model's
-// name) and the Boyce index (its fine histogram spans the exact value range
+// every extent: value range, AUCs, the placements and their SE, DeLong's
+// full variance, the AUC's SD over the paired resamples (seeded by the run
+// alone), the full-sample partial ROC ratio, every threshold test, rings and
+// omission lists. Two things differ by design and are not compared: the
+// published half-size bootstrap (its stream is seeded by the model's name) and the Boyce index (its fine histogram spans the exact value range
 // for a raster, [-FarthestBound, 0] for the null).
 // It also checks the roles, that the sensitivity analysis leaves both nulls
 // out, and the sorting-bias ratios against a brute-force computation from
@@ -108,7 +109,7 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations)
 			}
 			return fmt.Sprint(sc.Scored, sc.NotScored, sc.Cells, sc.AreaKm2, sc.TestPoints, sc.TrainPoints, sc.TestOutside, sc.TrainOutside,
-				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, ratios, sc.Thresholds)
+				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE, sc.AUCUnweightedSEDeLong, sc.AUCBootSD, sc.Placements, sc.PlacementsUnweighted, ratios, sc.Thresholds)
 		}
 		if key(v) != key(c) {
 			t.Errorf("extent %s: virtual null\n %s\nGeoTIFF copy\n %s", id, key(v), key(c))
