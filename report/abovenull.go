@@ -221,7 +221,8 @@ func aboveNullHeadline(s *Sensitivity) string {
 	return " Against the null: " + strings.Join(parts, "; ") + "."
 }
 
-// aboveNullRows gives the page's "model minus null per extent" table.
+// aboveNullRows gives the full "model minus null" table of the Analysis
+// section: one row per metric, model, null and extent.
 func aboveNullRows(r *Results) [][]cell {
 	var rows [][]cell
 	if r.Sensitivity == nil {
@@ -233,7 +234,7 @@ func aboveNullRows(r *Results) [][]cell {
 			if g.Defined {
 				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signed3(g.Low)+" to "+signed3(g.High)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
 			} else {
-				row = append(row, tc("–"), tc("–"), tc("–"), tc("–"), tc(g.Method), tc("undefined"))
+				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
 			rows = append(rows, row)
 		}
@@ -241,8 +242,53 @@ func aboveNullRows(r *Results) [][]cell {
 	return rows
 }
 
+// aboveNullSummary gives the summary's "model minus null per extent"
+// table: one row per extent (family order) and one column per model and
+// null with the AUC difference, its 95% interval and the reading.
+func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
+	if r.Sensitivity == nil {
+		return nil, nil
+	}
+	var cols []*AboveNull
+	for i := range r.Sensitivity.AboveNull {
+		if an := &r.Sensitivity.AboveNull[i]; an.Metric == "auc" && an.Defined > 0 {
+			cols = append(cols, an)
+		}
+	}
+	if len(cols) == 0 {
+		return nil, nil
+	}
+	head = []string{"extent", "area"}
+	for _, an := range cols {
+		head = append(head, an.Model+" − "+an.Null)
+	}
+	for _, e := range r.Extents {
+		var row []cell
+		has := false
+		for _, an := range cols {
+			g := an.gap(e.ID)
+			if g == nil || !g.Defined {
+				row = append(row, dash)
+				continue
+			}
+			has = true
+			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signed3(g.Low), signed3(g.High), strings.ReplaceAll(g.Reading, "_", " ")),
+				num: g.Diff, isN: true, cls: "n"})
+		}
+		if has {
+			rows = append(rows, append([]cell{tc(e.ID), areaCell(e.AreaKm2)}, row...))
+		}
+	}
+	return head, rows
+}
+
 // aboveNullNote explains the table.
 const aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0. " +
 	"Each row is a test of one difference against 0; how the gap changes from extent to extent is a description."
+
+// aboveNullSummaryNote explains the summary table.
+const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
+	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
+	"\"below\" when it lies wholly below 0. The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -90,6 +90,9 @@ func TestAboveNullReadings(t *testing.T) {
 	if rows := aboveNullRows(r); len(rows) != len(ok) {
 		t.Errorf("table rows %d, want %d", len(rows), len(ok))
 	}
+	if _, rows := aboveNullSummary(r); len(rows) != len(ok) {
+		t.Errorf("table rows %d, want %d", len(rows), len(ok))
+	}
 	found := false
 	for _, f := range figures(r) {
 		found = found || f.Name == "model_minus_null"

@@ -90,16 +90,11 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	}
 	p.s("</ul>")
 	// Models against the nulls.
-	if rows := aboveNullRows(r); len(rows) > 0 {
-		p.s(`<h3>Model minus null per extent</h3><ul class="sentences">`)
-		for _, an := range s.AboveNull {
-			p.f("<li>%s</li>", htmlEscape(an.Sentence))
-		}
-		p.s("</ul>")
-		p.f("<p>%s</p>", htmlEscape(aboveNullNote))
-		p.table("tbl-above-null", "", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+	if head, rows := aboveNullSummary(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null per extent</h3>`)
+		p.f("<p>%s</p>", htmlEscape(aboveNullSummaryNote))
+		p.table("tbl-above-null-summary", "", head, rows)
 	}
-
 	nw := len(r.Warnings) + len(s.Warnings)
 	if nw > 0 {
 		p.f(`<p class="warnnote">%d warning%s: see <a href="#warnings">Warnings</a>.</p>`, nw, plural(nw))
@@ -315,6 +310,17 @@ func writeAnalysisTables(p *page, r *Results) {
 		p.f("<li>%s</li>", htmlEscape(t.Sentence))
 	}
 	p.s("</ul>")
+
+	// Models against the nulls, every metric.
+	if rows := aboveNullRows(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null</h3><ul class="sentences">`)
+		for _, an := range s.AboveNull {
+			p.f("<li>%s</li>", htmlEscape(an.Sentence))
+		}
+		p.s("</ul>")
+		p.f("<p>%s</p>", htmlEscape(aboveNullNote))
+		p.table("tbl-above-null", "", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+	}
 
 	// Independence.
 	ind := s.Independence
