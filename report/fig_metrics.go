@@ -123,6 +123,9 @@ func areaAxis(max float64) (float64, string) {
 type metricPanel struct {
 	m   MetricInfo
 	pts [][]metricPoint // per model, in Sensitivity.ModelNames order
+	// nulls holds each null's values against the extent area (km²), in
+	// Results.Models order: drawn as grey dotted reference lines.
+	nulls []plotter.XYs
 }
 
 // metricPanels returns the metrics that have at least one point, and the
@@ -139,6 +142,14 @@ func metricPanels(r *Results) ([]metricPanel, float64) {
 			for _, p := range pn.pts[i] {
 				any = true
 				maxArea = math.Max(maxArea, p.area)
+			}
+		}
+		for _, nm := range nulls(r) {
+			xys := nullSeries(r, m, nm.Name)
+			pn.nulls = append(pn.nulls, xys)
+			for _, xy := range xys {
+				any = true
+				maxArea = math.Max(maxArea, xy.X)
 			}
 		}
 		if any {
@@ -196,6 +207,23 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 		}
 		p.Add(sc)
 	}
+	for j, xys := range pn.nulls {
+		if len(xys) == 0 {
+			continue
+		}
+		pts := make(plotter.XYs, len(xys))
+		for q, xy := range xys {
+			pts[q] = plotter.XY{X: xy.X / div, Y: xy.Y}
+			lo, hi = math.Min(lo, xy.Y), math.Max(hi, xy.Y)
+			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
+		}
+		l, sc, err := plotter.NewLinePoints(pts)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure metrics: %w", err)
+		}
+		l.LineStyle, sc.GlyphStyle = nullLineStyle(j)
+		p.Add(l, sc)
+	}
 	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
 	p.X.Min, p.X.Max = amin/1.25, amax*1.25
 	return p, nil
@@ -215,6 +243,10 @@ func metricsFigure(r *Results) figure {
 	for i, model := range s.ModelNames {
 		ls := lineStyle(modelColor(i), 1, modelDash(i))
 		items = append(items, legendItem{"model " + model, glyphThumb{gs: markerStyle(i), line: &ls}})
+	}
+	for j, nm := range nulls(r) {
+		ls, gs := nullLineStyle(j)
+		items = append(items, legendItem{modelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
 	}
 	legend := legendRows(items, f.W)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)

@@ -54,8 +54,8 @@ func logPosition(a, lo, hi float64) float64 {
 // rocFigure draws the ROC curves on the area axis, one panel per model,
 // each curve coloured by the area of its extent.
 func rocFigure(r *Results) figure {
-	s := r.Sensitivity
-	n := max(1, len(s.ModelNames))
+	panels := rocPanels(r)
+	n := max(1, len(panels))
 	cols := min(n, 3)
 	rows := (n + cols - 1) / cols
 	e := 0.0
@@ -74,7 +74,7 @@ func rocFigure(r *Results) figure {
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
 	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
-		"predicted present (y), one panel per model, one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
+		"predicted present (y), one panel per model (and per null, after the models), one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
 		"The selector under the figures names each curve.", fmtG(e))
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
@@ -95,8 +95,8 @@ func rocFigure(r *Results) figure {
 		for j := range plots {
 			plots[j] = make([]*plot.Plot, cols)
 		}
-		for i, model := range s.ModelNames {
-			p := newPlot("model "+model, panelW-vg.Points(30))
+		for i, model := range panels {
+			p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 			p.X.Label.Text = "share of extent predicted present"
 			if cols >= 3 {

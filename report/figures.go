@@ -49,6 +49,7 @@ func figures(r *Results) []figure {
 	if f, ok := ringsFigure(r); ok {
 		fs = append(fs, f)
 	}
+	fs = append(fs, nullGapFigures(r)...)
 	return fs
 }
 

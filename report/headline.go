@@ -139,6 +139,7 @@ func headline(a *analysis, s *Sensitivity) string {
 			break
 		}
 	}
+	b.WriteString(aboveNullHeadline(s))
 	if s.Independence.Warn {
 		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score is likely inflated.", pct(s.Independence.NearShare), NearCells)
 	}

@@ -91,6 +91,12 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 		p.f(`<li><span class="badge %s">%s</span> %s</li>`, verdictClass(v.Verdict), htmlEscape(v.Verdict), htmlEscape(v.Sentence))
 	}
 	p.s("</ul>")
+	// Models against the nulls.
+	if head, rows := aboveNullSummary(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null per extent</h3>`)
+		p.f("<p>%s</p>", htmlEscape(aboveNullSummaryNote))
+		p.table("tbl-above-null-summary", "", head, rows)
+	}
 	nw := len(r.Warnings) + len(s.Warnings)
 	if nw > 0 {
 		p.f(`<p class="warnnote">%d warning%s: see <a href="#warnings">Warnings</a>.</p>`, nw, plural(nw))
@@ -312,6 +318,17 @@ func writeAnalysisTables(p *page, r *Results) {
 	}
 	p.s("</ul>")
 
+	// Models against the nulls, every metric.
+	if rows := aboveNullRows(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null</h3><ul class="sentences">`)
+		for _, an := range s.AboveNull {
+			p.f("<li>%s</li>", htmlEscape(an.Sentence))
+		}
+		p.s("</ul>")
+		p.f("<p>%s</p>", htmlEscape(aboveNullNote))
+		p.table("tbl-above-null", "", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+	}
+
 	// Independence.
 	ind := s.Independence
 	p.s(`<h3>Independence of the test points</h3>`)
@@ -319,6 +336,12 @@ func writeAnalysisTables(p *page, r *Results) {
 	if ind.Defined {
 		p.table("tbl-independence", "Distance from each test point to the nearest training point (km)", []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
 			[][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}})
+	}
+	if sb := sortingBiasRows(r); len(sb) > 0 {
+		p.s(`<h3>Spatial sorting bias</h3>`)
+		p.f("<p>%s</p>", htmlEscape(sortingBiasNote))
+		p.table("tbl-sorting-bias", "Distance to the nearest training point: test points against the extent's cells", []string{"extent", "area",
+			"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"}, sb)
 	}
 
 	// Where errors fall.
@@ -383,7 +406,7 @@ func writeScoreTables(p *page, r *Results) {
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
 	for _, sc := range r.Scores {
-		row := []cell{tc(sc.Model), tc(sc.Extent), areaCell(sc.AreaKm2)}
+		row := []cell{tc(modelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
 		if !sc.Scored {
 			row = append(row, dash, dash, tc("no: "+sc.NotScored))
 			for len(row) < len(head) {
@@ -527,7 +550,7 @@ func writeSettings(p *page, r *Results) {
 	p.table("tbl-inputs", "", []string{"role", "path", "SHA-256"}, in)
 	var ms [][]cell
 	for _, m := range r.Models {
-		ms = append(ms, []cell{tc(m.Name), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
+		ms = append(ms, []cell{tc(modelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
 	}
 	p.s("<h3>Models</h3>")
 	p.table("tbl-models", "", []string{"model", "path", "minimum", "maximum", "share of area at minimum"}, ms)

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
 
@@ -133,7 +134,12 @@ func methodsText(r *Results) string {
 	b.WriteString(reviewerText(r))
 	b.WriteString("\n\n")
 	b.WriteString("## References\n\n")
-	for _, ref := range references {
+	refs := slices.Clone(references)
+	if len(nulls(r)) > 0 {
+		refs = append(refs, hijmans2012)
+		slices.Sort(refs)
+	}
+	for _, ref := range refs {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
@@ -147,6 +153,9 @@ func plural(n int) string {
 }
 
 // references are the methods cited in methods.md.
+// hijmans2012 is cited when the report holds a null.
+const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distribution models: removing spatial sorting bias and calibration with a null model. Ecology 93: 679-688."
+
 var references = []string{
 	"Anderson, R.P., Lew, D. & Peterson, A.T. (2003) Evaluating predictive models of species' distributions: criteria for selecting optimal models. Ecological Modelling 162: 211-232.",
 	"DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Comparing the areas under two or more correlated receiver operating characteristic curves: a nonparametric approach. Biometrics 44: 837-845.",
@@ -190,6 +199,7 @@ func resultNumbers(r *Results) string {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
 			trimFloat(s.Independence.Median, 3), pct(s.Independence.NearShare), NearCells)
 	}
+	out += nullSentences(r)
 	return strings.TrimSpace(out)
 }
 

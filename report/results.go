@@ -10,11 +10,21 @@ import (
 // SchemaVersion is the version of the results.json layout written by this
 // package. It changes whenever a field is renamed or its meaning changes.
 //
-// Version 2: per-test-point placements, auc_se, the DeLong variance, paired
-// differences ("paired"), tolerances and paired resamples in the settings,
-// auc_boot_sd from full-size resamples, partial ROC "defined" with the tie
-// rule, and the equivalence verdicts of the sensitivity analysis.
-const SchemaVersion = 2
+// Version 2 existed in two forms, one from each of two lines of work, and
+// version 3 holds both:
+//   - per-test-point placements, auc_se, the DeLong variance, paired
+//     differences ("paired"), tolerances and paired resamples in the
+//     settings, auc_boot_sd from full-size resamples, partial ROC "defined"
+//     with the tie rule, and the equivalence verdicts of the sensitivity
+//     analysis;
+//   - models may be nulls (Model.Role), scored like models (placements and
+//     paired records included) but kept out of every ranking and of the
+//     sensitivity analysis; extents carry the spatial sorting bias;
+//     settings.distance_null;
+//
+// and adds model above null: paired records of kind "null" (every model
+// minus every null per extent) and sensitivity.above_null.
+const SchemaVersion = 3
 
 // Results is the whole of one run as written to results.json. Every slice is
 // kept in a stable order (extents in family order, scores by model then
@@ -64,6 +74,8 @@ type Settings struct {
 	ThinPerCell        bool      `json:"thin_per_cell"`
 	BoyceWindow        float64   `json:"boyce_window"`
 	BoyceSteps         int       `json:"boyce_steps"`
+	// DistanceNull is true when the distance-only null was scored.
+	DistanceNull bool `json:"distance_null"`
 	// PairedResamples is B, the number of full-size paired resamples of the
 	// test points (one set, drawn from the run seed alone, shared by every
 	// model and extent).
@@ -96,7 +108,7 @@ const (
 
 // Input is one input file and its SHA-256 checksum.
 type Input struct {
-	Role   string `json:"role"` // "model:NAME", "occurrences", "region", "ecoregions", "extra"
+	Role   string `json:"role"` // "model:NAME", "null:NAME", "occurrences", "region", "ecoregions", "extra"
 	Path   string `json:"path"`
 	SHA256 string `json:"sha256"`
 }
@@ -111,10 +123,33 @@ type Grid struct {
 	CellAreaNote string     `json:"cell_area_method"`
 }
 
-// Model is one suitability raster.
+// Model roles and null kinds (Model.Role, Model.NullKind).
+const (
+	// RoleModel is a suitability model the study evaluates.
+	RoleModel = "model"
+	// RoleNull is a reference surface scored like a model on the same
+	// extents and test points, shown beside the models and never ranked.
+	RoleNull = "null"
+	// NullDistance is the distance-only null: minus the geodesic distance
+	// from each cell's centre to the nearest training point (Hijmans 2012,
+	// Ecology 93:679-688), computed by areasweep.
+	NullDistance = "distance_to_training"
+	// NullRaster is a raster the user marked as a null (--null).
+	NullRaster = "raster"
+	// DistanceNullName is the model name of the distance-only null.
+	DistanceNullName = "distance_null"
+)
+
+// Model is one suitability raster, or a null scored like one.
 type Model struct {
 	Name string `json:"name"`
+	// Path is the raster's path; empty for the distance-only null, which is
+	// computed.
 	Path string `json:"path"`
+	// Role is RoleModel or RoleNull.
+	Role string `json:"role"`
+	// NullKind is NullDistance or NullRaster for a null, empty for a model.
+	NullKind string `json:"null_kind,omitempty"`
 	// ValueMin and ValueMax are the smallest and largest valid values seen in
 	// the pass over the whole raster.
 	ValueMin float64 `json:"value_min"`
@@ -164,6 +199,41 @@ type Extent struct {
 	// Chain names the nested chain this member belongs to (e.g. "region"),
 	// ordered by area; empty when the member is in no chain.
 	Chain string `json:"chain,omitempty"`
+	// SortingBias compares the test points' distances to the nearest
+	// training point with the extent's cells' (Hijmans 2012); absent when
+	// the distance-only null was not computed.
+	SortingBias *SortingBias `json:"sorting_bias,omitempty"`
+}
+
+// SortingBias is the spatial sorting bias of one extent (Hijmans 2012,
+// Ecology 93:679-688): with t_i the geodesic distance from test point i
+// inside the extent to the nearest training point and d_c that from the
+// centre of cell c of the extent, area-weighted by w_c,
+//
+//	ratio_mean   = mean_i t_i / (sum_c w_c d_c / sum_c w_c)
+//	ratio_median = median_i t_i / weighted median_c d_c
+//
+// Values well below 1 mean the test points lie nearer the training points
+// than the extent's background does: distance alone separates them. It is a
+// description of the data, not a test.
+type SortingBias struct {
+	// Defined is false when the extent holds no test point or no area;
+	// Reason then says which, and the numbers are 0.
+	Defined bool   `json:"defined"`
+	Reason  string `json:"reason,omitempty"`
+	// TestPoints is the number of test points inside the extent.
+	TestPoints int `json:"test_points"`
+	// TestMeanKm and TestMedianKm summarise t_i (the median of an even
+	// count is the mean of the middle two).
+	TestMeanKm   float64 `json:"test_mean_km"`
+	TestMedianKm float64 `json:"test_median_km"`
+	// BackgroundMeanKm is exact but for rounding each d_c to the millimetre;
+	// BackgroundMedianKm is read from bins of relative width 0.001 with
+	// linear interpolation inside the bin, so within 0.1%.
+	BackgroundMeanKm   float64 `json:"background_mean_km"`
+	BackgroundMedianKm float64 `json:"background_median_km"`
+	RatioMean          float64 `json:"ratio_mean"`
+	RatioMedian        float64 `json:"ratio_median"`
 }
 
 // Score holds every metric of one model on one extent.
@@ -318,8 +388,9 @@ type Preview struct {
 
 // Paired is one paired difference A - B on the test points both sides
 // share: two extents of one model (Kind "extent": Extent minus
-// OtherExtent, the base extent) or two models on one extent (Kind "model":
-// Model minus OtherModel).
+// OtherExtent, the base extent), two models on one extent (Kind "model":
+// Model minus OtherModel) or a model and a null on one extent (Kind
+// PairedKindNull: Model minus the null OtherModel).
 //
 // Method "placements": AUC differences from per-point placements, SE =
 // sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a normal 95% interval.
@@ -411,3 +482,6 @@ func (r *Results) Encode() ([]byte, error) {
 	}
 	return buf.Bytes(), nil
 }
+
+// IsNull reports whether m is a null rather than a model under evaluation.
+func (m Model) IsNull() bool { return m.Role == RoleNull }

@@ -66,6 +66,11 @@ type Sensitivity struct {
 	// Rankings compares every pair of models per metric by their paired
 	// differences on each extent; empty with fewer than two models.
 	Rankings []ModelRanking `json:"rankings"`
+	// AboveNull compares every model with every null, per metric (AUC and
+	// the partial ROC ratio at each E) and scored extent: the paired
+	// difference model minus null with its 95% interval. Empty without
+	// nulls.
+	AboveNull []AboveNull `json:"above_null"`
 	// Decompositions describes, per metric, how the spread of the models x
 	// extents table splits (a property of the chosen family) and how far
 	// the extents agree on the order of the models; empty with fewer than
@@ -446,6 +451,7 @@ func Analyze(r *Results) error {
 		ModelVerdicts:  []ModelVerdict{},
 		Verdicts:       []Verdict{},
 		Rankings:       []ModelRanking{},
+		AboveNull:      []AboveNull{},
 		Decompositions: []Decomposition{},
 		Chains:         []ChainSummary{},
 		Truncation:     []TruncationCheck{},
@@ -475,6 +481,7 @@ func Analyze(r *Results) error {
 			s.Decompositions = append(s.Decompositions, a.decompose(m))
 		}
 	}
+	s.AboveNull = a.aboveNull(s.ScoredExtents)
 	chains, w := a.chains()
 	s.Chains = chains
 	s.Warnings = append(s.Warnings, w...)
@@ -509,6 +516,12 @@ type analysis struct {
 func newAnalysis(r *Results) *analysis {
 	a := &analysis{r: r, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
 	seenModel := map[string]bool{}
+	// Nulls are references, not models: they never enter the analysis.
+	for _, m := range r.Models {
+		if m.IsNull() {
+			seenModel[m.Name] = true
+		}
+	}
 	for _, m := range r.Models {
 		if !seenModel[m.Name] {
 			seenModel[m.Name] = true
@@ -525,6 +538,9 @@ func newAnalysis(r *Results) *analysis {
 	}
 	for i := range r.Scores {
 		sc := &r.Scores[i]
+		if isNull(r, sc.Model) {
+			continue
+		}
 		if !allExt[sc.Extent] {
 			a.warnings = append(a.warnings, fmt.Sprintf("score of model %s names extent %q, which is not in the extent family: ignored", sc.Model, sc.Extent))
 			continue
@@ -655,4 +671,14 @@ func checkFinite(r *Results) error {
 		}
 	}
 	return nil
+}
+
+// isNull reports whether the model named name is a null.
+func isNull(r *Results, name string) bool {
+	for _, m := range r.Models {
+		if m.Name == name {
+			return m.IsNull()
+		}
+	}
+	return false
 }

@@ -88,7 +88,9 @@ func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
 // scoresCSV renders the scores as one tidy table: one row per model,
 // extent and value, for scored pairs only. test_points is the number of
-// test records inside the extent that every score of the row uses. Partial
+// test records inside the extent that every score of the row uses (for a
+// model-minus-null row, the test points both sides share). role is
+// "model" or "null". Partial
 // ROC rows carry their E; threshold-test rows carry their rule
 // ("minimum_training_presence", "p10_training_presence", "fixed_<value>")
 // and give, per rule, the cut value, the test records missed (k) out of
@@ -97,10 +99,14 @@ func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 func scoresCSV(r *report.Results) []byte {
 	var buf bytes.Buffer
 	w := csv.NewWriter(&buf)
-	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value"})
+	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value", "role"})
 	kinds := map[string]report.Extent{}
 	for _, e := range r.Extents {
 		kinds[e.ID] = e
+	}
+	roles := map[string]report.Model{}
+	for _, m := range r.Models {
+		roles[m.Name] = m
 	}
 	for _, sc := range r.Scores {
 		if !sc.Scored {
@@ -108,8 +114,12 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		ex := kinds[sc.Extent]
 		n := strconv.Itoa(sc.TestPoints)
+		role := report.RoleModel
+		if roles[sc.Model].IsNull() {
+			role = report.RoleNull
+		}
 		row := func(metric, e, rule string, v float64) {
-			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v)})
+			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v), role})
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
@@ -143,6 +153,40 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		if sc.Boyce != nil {
 			row("boyce_index", "", "", sc.Boyce.Index)
+		}
+		// The sorting bias belongs to the extent; it is listed with the
+		// distance-only null, whose pass measures it.
+		if sb := ex.SortingBias; sb != nil && sb.Defined && roles[sc.Model].NullKind == report.NullDistance {
+			row("sorting_bias_ratio_mean", "", "", sb.RatioMean)
+			row("sorting_bias_ratio_median", "", "", sb.RatioMedian)
+			row("sorting_bias_test_mean_km", "", "", sb.TestMeanKm)
+			row("sorting_bias_background_mean_km", "", "", sb.BackgroundMeanKm)
+			row("sorting_bias_test_median_km", "", "", sb.TestMedianKm)
+			row("sorting_bias_background_median_km", "", "", sb.BackgroundMedianKm)
+		}
+	}
+	// Model minus null on each extent (results.json paired records of kind
+	// "null"): the difference, its SE and 95% interval, on the row of the
+	// model, with the null's name in the metric.
+	for _, p := range r.Paired {
+		if p.Kind != report.PairedKindNull || !p.Defined {
+			continue
+		}
+		ex := kinds[p.Extent]
+		var metric, e string
+		switch {
+		case p.Metric == "auc":
+			metric = "auc_minus_" + p.OtherModel
+		case strings.HasPrefix(p.Metric, "partial_roc_e"):
+			metric, e = "partial_roc_ratio_minus_"+p.OtherModel, strings.TrimPrefix(p.Metric, "partial_roc_e")
+		default:
+			continue
+		}
+		for _, v := range []struct {
+			suffix string
+			v      float64
+		}{{"", p.Diff}, {"_se", p.SE}, {"_ci_low", p.Low}, {"_ci_high", p.High}} {
+			w.Write([]string{p.Model, p.Extent, ex.Kind, ftoa(ex.AreaKm2), strconv.Itoa(p.CommonPoints), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
 		}
 	}
 	w.Flush()

@@ -50,10 +50,13 @@ func (s *session) evaluator(model, ext string, acc *metrics.Accumulator, test []
 	return sd, nil
 }
 
-// paired fills Results.Paired: for every model, each scored extent minus
-// the base extent; for every extent, each pair of models (earlier minus
-// later in model order). Any model scored by scoreModel, a null model
-// included, takes part.
+// paired fills Results.Paired: for every model and null, each scored
+// extent minus the base extent; for every extent, each pair of models
+// (earlier minus later in model order, nulls left out: they are never
+// ranked) and each model minus each null ("null" records: how far the model
+// stands above the null on the same test points). Models are taken from
+// Results.Models, so the distance-only null, scored outside s.models, takes
+// part.
 func (s *session) paired() error {
 	s.res.Paired = []report.Paired{}
 	var ids []string
@@ -69,9 +72,18 @@ func (s *session) paired() error {
 		}
 		return nil
 	}
+	all := s.res.Models
+	var models, nullModels []report.Model
+	for _, m := range all {
+		if m.IsNull() {
+			nullModels = append(nullModels, m)
+		} else {
+			models = append(models, m)
+		}
+	}
 	var okIDs []string
 	for _, id := range ids {
-		for _, m := range s.models {
+		for _, m := range all {
 			if scored(m.Name, id) != nil {
 				okIDs = append(okIDs, id)
 				break
@@ -81,7 +93,7 @@ func (s *session) paired() error {
 	base := report.BaseExtent(okIDs)
 	type job struct{ kind, ma, ea, mb, eb string }
 	var jobs []job
-	for _, m := range s.models {
+	for _, m := range all {
 		if scored(m.Name, base) == nil {
 			continue
 		}
@@ -92,10 +104,19 @@ func (s *session) paired() error {
 		}
 	}
 	for _, id := range okIDs {
-		for i, a := range s.models {
-			for _, b := range s.models[i+1:] {
+		for i, a := range models {
+			for _, b := range models[i+1:] {
 				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
 					jobs = append(jobs, job{"model", a.Name, id, b.Name, id})
+				}
+			}
+		}
+	}
+	for _, id := range okIDs {
+		for _, a := range models {
+			for _, n := range nullModels {
+				if scored(a.Name, id) != nil && scored(n.Name, id) != nil {
+					jobs = append(jobs, job{report.PairedKindNull, a.Name, id, n.Name, id})
 				}
 			}
 		}

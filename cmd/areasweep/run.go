@@ -18,6 +18,8 @@ type RunOptions struct {
 
 	Study              string
 	Models             []string // NAME=PATH
+	Nulls              []string // NAME=PATH, rasters scored as nulls
+	NoDistanceNull     bool
 	Occurrences        string
 	OccurrencesCRS     string
 	Region             string
@@ -120,6 +122,8 @@ func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command,
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
 	f.StringVar(&o.Study, "study", "", "study file (YAML) whose keys are these flag names")
 	f.StringArrayVar(&o.Models, "model", nil, "model raster as NAME=PATH (repeatable; all on one grid)")
+	f.StringArrayVar(&o.Nulls, "null", nil, "raster scored as a null, not a model, as NAME=PATH (repeatable; same grid): shown beside the models, never ranked")
+	f.BoolVar(&o.NoDistanceNull, "no-distance-null", false, "skip the distance-only null (minus the distance to the nearest training point) and the sorting-bias ratios")
 	f.StringVar(&o.Occurrences, "occurrences", "", "CSV of occurrences: longitude, latitude and role (train/test) columns")
 	f.StringVar(&o.OccurrencesCRS, "occurrences-crs", "", "CRS of the occurrence coordinates (default WGS84 lon/lat), e.g. EPSG:3035")
 	f.StringVar(&o.Region, "region", "", "base study region polygons (any OGR format: GeoPackage, Shapefile, GeoJSON)")
@@ -167,6 +171,9 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	if st.Model != nil && set("model") {
 		o.Models = st.Model
 	}
+	if st.Null != nil && set("null") {
+		o.Nulls = st.Null
+	}
 	str := func(name string, dst *string, v *string) {
 		if v != nil && set(name) {
 			*dst = *v
@@ -190,6 +197,7 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	boolean("point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
 	boolean("no-thin", &o.NoThin, st.NoThin)
 	boolean("membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
+	boolean("no-distance-null", &o.NoDistanceNull, st.NoDistanceNull)
 	if st.Extra != nil && set("extra") {
 		o.Extra = st.Extra
 	}
@@ -238,6 +246,19 @@ func (o *RunOptions) validate() error {
 			return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
 		}
 		seen[name] = true
+	}
+	for _, m := range o.Nulls {
+		name, _, err := inputs.ParseNamedPath(m)
+		if err != nil {
+			return fmt.Errorf("--null %q: %w", m, err)
+		}
+		if seen[name] {
+			return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
+		}
+		seen[name] = true
+	}
+	if seen[report.DistanceNullName] && !o.NoDistanceNull {
+		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
 	}
 	for _, m := range o.Extra {
 		if _, _, err := inputs.ParseNamedPath(m); err != nil {

@@ -42,13 +42,38 @@ func (s *session) split(vals []float64, valid []bool) modelPoints {
 // scoreModel samples model i at the points, streams it once through the
 // family's accumulators and scores every extent.
 func (s *session) scoreModel(i int, m namedPath) error {
-	g, fam := s.grid, s.fam
 	r, err := pass.Open(m.Path)
 	if err != nil {
 		return badInput(err)
 	}
 	defer r.Close()
-	vals, valid, err := r.Sample(g, s.cell)
+	// The fine histogram (Boyce) spans the exact value range, so that the
+	// same pixels give the same index whatever the file layout.
+	lo, hi, _, err := r.ExactRange()
+	if err != nil {
+		return badInput(err)
+	}
+	role := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
+	if m.Null {
+		role.Role, role.NullKind = report.RoleNull, report.NullRaster
+	}
+	return s.scoreSource(i, role, r, lo, hi, nil)
+}
+
+// source is a model the pass can score: a raster or a computed field.
+type source interface {
+	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
+	Blocks() int
+	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
+}
+
+// scoreSource scores model m (name, path and role filled) from src, the
+// i-th pass of the run: values at the points, the layout (fine histogram
+// over [lo, hi] widened to the point values), one pass, and every metric
+// on every extent. rows, when set, sees every row of the pass.
+func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64, rows func(int, int, []float64, []uint64, []int64)) error {
+	g, fam := s.grid, s.fam
+	vals, valid, err := src.Sample(g, s.cell)
 	if err != nil {
 		return badInput(err)
 	}
@@ -68,12 +93,6 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
 	}
 	layoutVals = append(layoutVals, s.o.Thresholds...)
-	// The fine histogram (Boyce) spans the exact value range, so that the
-	// same pixels give the same index whatever the file layout.
-	lo, hi, _, err := r.ExactRange()
-	if err != nil {
-		return badInput(err)
-	}
 	for _, v := range layoutVals {
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
 	}
@@ -88,20 +107,20 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if i == 0 {
 		pv = pass.NewPreview(g, previewSide)
 	}
-	opt := pass.Options{Workers: s.o.Workers, Preview: pv}
+	opt := pass.Options{Workers: s.o.Workers, Preview: pv, Rows: rows}
 	if s.valid == nil {
 		// The first pass also finds the valid cells the family is clipped to.
 		opt.Valid = extent.NewValid(g.Cells())
 	}
 	t0 := time.Now()
-	bar := s.progress("scoring "+m.Name, r.Blocks())
+	bar := s.progress("scoring "+m.Name, src.Blocks())
 	opt.Progress = bar.update
-	accs, stats, err := r.Score(g, fam, layout, opt)
+	accs, stats, err := src.Score(g, fam, layout, opt)
 	bar.finish()
 	if err != nil {
 		return badInput(err)
 	}
-	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
+	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, src.Blocks(), time.Since(t0).Seconds())
 	t0 = time.Now()
 	if opt.Valid != nil {
 		if err := s.clip(opt.Valid); err != nil {
@@ -112,7 +131,8 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if stats.Area > 0 {
 		floor = float64(stats.FloorArea) / float64(stats.Area)
 	}
-	s.res.Models = append(s.res.Models, report.Model{Name: m.Name, Path: s.recordedPath(m.Path), ValueMin: stats.Min, ValueMax: stats.Max, FloorShare: floor})
+	m.ValueMin, m.ValueMax, m.FloorShare = stats.Min, stats.Max, floor
+	s.res.Models = append(s.res.Models, m)
 	if pv != nil {
 		s.res.Preview = s.preview(pv, stats)
 	}

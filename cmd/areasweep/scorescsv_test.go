@@ -24,7 +24,7 @@ func TestScoresCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value"}
+	want := []string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value", "role"}
 	if len(recs) == 0 || len(recs[0]) != len(want) {
 		t.Fatalf("header %v, want %v", recs[0], want)
 	}

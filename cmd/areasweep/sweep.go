@@ -60,7 +60,12 @@ func (s *session) recordedPath(p string) string {
 	return p
 }
 
-type namedPath struct{ Name, Path string }
+// namedPath is a model raster by name; Null marks one the user gave as a
+// null (--null).
+type namedPath struct {
+	Name, Path string
+	Null       bool
+}
 
 // logf writes a line to the run log and, unless quiet, to stderr.
 func (s *session) logf(format string, args ...any) {
@@ -112,6 +117,11 @@ func sweep(o *RunOptions) error {
 	} else {
 		for i, m := range s.models {
 			if err := s.scoreModel(i, m); err != nil {
+				return err
+			}
+		}
+		if !o.NoDistanceNull {
+			if err := s.scoreDistanceNull(len(s.models)); err != nil {
 				return err
 			}
 		}
@@ -181,7 +191,14 @@ func (s *session) readInputs() error {
 		if err := mustExist("model "+name, path); err != nil {
 			return err
 		}
-		s.models = append(s.models, namedPath{name, path})
+		s.models = append(s.models, namedPath{Name: name, Path: path})
+	}
+	for _, m := range o.Nulls {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("null "+name, path); err != nil {
+			return err
+		}
+		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
 	}
 	for _, p := range []struct{ what, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
 		if p.path != "" {
@@ -415,7 +432,11 @@ func (s *session) checksums() error {
 		return nil
 	}
 	for _, m := range s.models {
-		if err := add("model:"+m.Name, m.Path); err != nil {
+		role := "model:" + m.Name
+		if m.Null {
+			role = "null:" + m.Name
+		}
+		if err := add(role, m.Path); err != nil {
 			return err
 		}
 	}

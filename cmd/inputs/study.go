@@ -20,7 +20,7 @@ import (
 // the file, a non-nil empty slice was given as an empty list. Keys are
 // exactly the long flag names of the command.
 //
-// Paths (the PATH part of model and extra, occurrences, region,
+// Paths (the PATH part of model, null and extra, occurrences, region,
 // ecoregions, out) are already resolved against the study file's directory.
 type Study struct {
 	Model              []string  `yaml:"model"` // "NAME=PATH"
@@ -44,6 +44,8 @@ type Study struct {
 	Out                *string   `yaml:"out"`
 	NoThin             *bool     `yaml:"no-thin"`
 	MembershipTIFF     *bool     `yaml:"membership-tif"`
+	Null               []string  `yaml:"null"` // "NAME=PATH"
+	NoDistanceNull     *bool     `yaml:"no-distance-null"`
 	// Tolerances of the equivalence verdicts.
 	ToleranceAUC        *float64 `yaml:"tolerance-auc"`
 	TolerancePartialROC *float64 `yaml:"tolerance-partial-roc"`
@@ -56,7 +58,7 @@ var studyKeys = []string{
 	"model", "occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field",
 	"ecoregion-min-points", "ecoregion-clip", "extra", "region-buffers", "point-buffers",
 	"point-buffers-all", "hull-buffers", "e", "iterations", "fraction", "thresholds", "seed",
-	"out", "no-thin", "membership-tif",
+	"out", "no-thin", "membership-tif", "null", "no-distance-null",
 	"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce",
 }
 
@@ -253,6 +255,10 @@ func (s *Study) set(key string, v *yaml.Node, dir string) error {
 	switch key {
 	case "model":
 		s.Model, err = namedPaths(key, v, dir)
+	case "null":
+		s.Null, err = namedPaths(key, v, dir)
+	case "no-distance-null":
+		s.NoDistanceNull, err = boolValue(key, v)
 	case "extra":
 		s.Extra, err = namedPaths(key, v, dir)
 	case "occurrences":
@@ -662,6 +668,10 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 	switch key {
 	case "model":
 		return s.Model, s.Model != nil
+	case "null":
+		return s.Null, s.Null != nil
+	case "no-distance-null":
+		return boolean(s.NoDistanceNull)
 	case "extra":
 		return s.Extra, s.Extra != nil
 	case "occurrences":

@@ -22,6 +22,9 @@ const fullStudy = `# a complete study
 model:
   - gbm=models/gbm.tif
   - glm=/abs/glm.tif
+null:
+  - effort=effort.tif
+no-distance-null: false
 occurrences: occ/points.csv
 occurrences-crs: EPSG:32633
 region: region.gpkg
@@ -53,6 +56,8 @@ func fullStudyWant(dir string) *Study {
 	j := func(p string) string { return filepath.Join(dir, p) }
 	return &Study{
 		Model:              []string{"gbm=" + j("models/gbm.tif"), "glm=/abs/glm.tif"},
+		Null:               []string{"effort=" + j("effort.tif")},
+		NoDistanceNull:     ptr(false),
 		Occurrences:        ptr(j("occ/points.csv")),
 		OccurrencesCRS:     ptr("EPSG:32633"),
 		Region:             ptr(j("region.gpkg")),
@@ -390,6 +395,7 @@ func newFlags() *cobra.Command {
 	cmd := &cobra.Command{Use: "t"}
 	fs := cmd.Flags()
 	fs.StringArray("model", nil, "")
+	fs.StringArray("null", nil, "")
 	fs.StringArray("extra", nil, "")
 	for _, k := range []string{"occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field", "out"} {
 		fs.String(k, "", "")
@@ -397,7 +403,7 @@ func newFlags() *cobra.Command {
 	fs.String("ecoregion-crs-unused", "", "")
 	fs.Int("ecoregion-min-points", 1, "")
 	fs.Int("iterations", 500, "")
-	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif"} {
+	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif", "no-distance-null"} {
 		fs.Bool(k, false, "")
 	}
 	for _, k := range []string{"region-buffers", "point-buffers", "hull-buffers", "e"} {

@@ -252,21 +252,52 @@ type Options struct {
 	// some extent, so that the first model's pass also yields the cells the
 	// family is clipped to (no separate read).
 	Valid extent.Valid
+	// Rows, when set, sees every row of every block once its values are
+	// known: the row, its first column, the values (NaN: no value), the
+	// cells' membership words and integer area weights. It is called from
+	// the workers at once and must not keep the slices.
+	Rows func(row, c0 int, vals []float64, mask []uint64, weights []int64)
 }
+
+// source is where a pass gets its blocks: a GDAL band (Raster) or a
+// computed field (Virtual).
+type source interface {
+	// blockSize is the size of the blocks each sends.
+	blockSize() (w, h int)
+	// Blocks is the number of blocks, for progress.
+	Blocks() int
+	// each sends every block in order to out, taking buffers from free.
+	each(out chan<- block, free chan []float64) error
+	// prepare turns a block as each sent it into model values (NaN: no
+	// value) on a worker; fam's mask tells which cells are scored.
+	prepare(fam *extent.Family, b block)
+}
+
+func (r *Raster) blockSize() (int, int) {
+	st := r.band.Structure()
+	return st.BlockSizeX, st.BlockSizeY
+}
+
+func (r *Raster) prepare(_ *extent.Family, b block) { r.decode(b.buf) }
 
 // Score streams the raster once and returns one accumulator per family
 // member (nil for members with no bit) and the pass statistics.
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
+	return score(r, g, fam, layout, opt)
+}
+
+// score is one streaming pass over src (see Raster.Score).
+func score(src source, g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	n := len(fam.Members)
-	st := r.band.Structure()
+	bw, bh := src.blockSize()
 	blocks := make(chan block, workers)
 	free := make(chan []float64, 2*workers)
 	for i := 0; i < 2*workers; i++ {
-		free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
+		free <- make([]float64, bw*bh)
 	}
 	type partial struct {
 		accs  []*metrics.Accumulator
@@ -290,7 +321,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 			// side by side in memory and per-cell writes would share cache lines.
 			var st Stats
 			for b := range blocks {
-				r.scoreBlock(g, fam, layout, b, p.accs, &st, areas, weights, opt.Preview, opt.Valid)
+				scoreBlock(src, g, fam, layout, b, p.accs, &st, areas, weights, opt)
 				free <- b.buf
 				doneBlocks <- struct{}{}
 			}
@@ -298,9 +329,9 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		}(&parts[w])
 	}
 	errc := make(chan error, 1)
-	go func() { errc <- r.each(blocks, free) }()
+	go func() { errc <- src.each(blocks, free) }()
 	go func() { wg.Wait(); close(doneBlocks) }()
-	done, total := 0, r.Blocks()
+	done, total := 0, src.Blocks()
 	for range doneBlocks {
 		done++
 		if opt.Progress != nil {
@@ -323,34 +354,50 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	return out, stats, nil
 }
 
+// RowWeights fills weights (length c1-c0) with the integer area units of
+// cells c0 <= c < c1 of row, the weights the pass adds, using areas as
+// scratch, and returns both.
+func RowWeights(g *extent.Grid, row, c0, c1 int, areas []float64, weights []int64) ([]float64, []int64) {
+	areas = g.RowAreasRange(row, c0, c1, areas)
+	if cap(weights) < len(areas) {
+		weights = make([]int64, len(areas))
+	}
+	weights = weights[:len(areas)]
+	lastA, lastW := -1.0, int64(0)
+	for x, a := range areas {
+		if a != lastA { // constant along rows of most grids
+			lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
+		}
+		weights[x] = lastW
+	}
+	return areas, weights
+}
+
 // scoreBlock adds every valid cell of b to the accumulators of its extents.
-func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, pv *Preview, valid extent.Valid) {
-	r.decode(b.buf)
+func scoreBlock(src source, g *extent.Grid, fam *extent.Family, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, areas []float64, weights []int64, opt Options) {
+	pv, valid := opt.Preview, opt.Valid
+	src.prepare(fam, b)
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
-		areas = g.RowAreasRange(row, b.x0, b.x0+b.w, areas)
-		lastA, lastW := -1.0, int64(0)
-		for x, a := range areas {
-			if a != lastA { // constant along rows of most grids
-				lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
-			}
-			weights[x] = lastW
-		}
+		areas, weights = RowWeights(g, row, b.x0, b.x0+b.w, areas, weights)
 		base := row*g.Width + b.x0
 		vals := b.buf[y*b.w : (y+1)*b.w]
 		mask := fam.Mask[base : base+b.w]
+		if opt.Rows != nil {
+			opt.Rows(row, b.x0, vals, mask, weights)
+		}
 		prow := -1
 		if pv != nil {
 			prow = pv.srcRow[row]
 		}
 		for x, v := range vals {
 			if prow >= 0 {
-				if pc := pv.srcCol[b.x0+x]; pc >= 0 && r.valid(v) {
+				if pc := pv.srcCol[b.x0+x]; pc >= 0 && !math.IsNaN(v) {
 					pv.Values[prow*pv.Width+pc] = v
 				}
 			}
 			m := mask[x]
-			if m == 0 || !r.valid(v) {
+			if m == 0 || math.IsNaN(v) {
 				continue
 			}
 			if valid != nil {

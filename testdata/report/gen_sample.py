@@ -588,7 +588,7 @@ counts = {"train": len(train), "test": len(test),
           "nodata": sum(q["status"] == "nodata" for q in points)}
 
 results = {
-    "schema_version": 2,
+    "schema_version": 3,
     "software": {"name": "areasweep", "version": "0.1.0-test"},
     "seed": 20240611,
     "settings": {"region_buffers_km": [50, 100, 200], "point_buffers_km": [25, 100, 400],
