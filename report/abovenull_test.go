@@ -87,6 +87,9 @@ func TestAboveNullReadings(t *testing.T) {
 	if !strings.Contains(r.Sensitivity.Headline, model+" beats "+DistanceNullName+" on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
 	}
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval +0.060 to +0.140, against "+DistanceNullName+") is above the null beyond noise") {
+		t.Errorf("reviewer reply: %s", rv)
+	}
 	if rows := aboveNullRows(r); len(rows) != len(ok) {
 		t.Errorf("table rows %d, want %d", len(rows), len(ok))
 	}
@@ -112,5 +115,8 @@ func TestAboveNullReadings(t *testing.T) {
 	}
 	if !strings.Contains(r.Sensitivity.Headline, model+" does not beat "+DistanceNullName+" on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
+	}
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval -0.010 to +0.140, against "+DistanceNullName+") does not exceed the null's beyond noise") {
+		t.Errorf("reviewer reply: %s", rv)
 	}
 }

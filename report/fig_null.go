@@ -17,14 +17,22 @@ import (
 // Sensitivity.AboveNull) against the extent area (log scale), with its
 // 95% interval as a vertical bar and a line at 0. It returns nil when the
 // results hold no defined model-minus-null difference.
-func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, error) {
+func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	if r.Sensitivity == nil {
-		return nil, nil
+		return nil, nil, nil
 	}
+	var items []legendItem
+	maxArea := 0.0
+	for _, an := range r.Sensitivity.AboveNull {
+		for _, g := range an.Gaps {
+			maxArea = math.Max(maxArea, g.AreaKm2)
+		}
+	}
+	div, unit := areaAxis(maxArea)
 	p := newPlot("AUC: model minus null, on the same test points", w)
 	p.X.Scale = plot.LogScale{}
 	p.X.Tick.Marker = logTicks{}
-	p.X.Label.Text = "extent area (km²)"
+	p.X.Label.Text = unit
 	p.Y.Label.Text = "AUC difference (model − null)"
 	modelIndex := map[string]int{}
 	for i, m := range r.Sensitivity.ModelNames {
@@ -61,7 +69,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, error) {
 			plotter.YErrors
 		}
 		for k, g := range gaps {
-			x := g.AreaKm2 * shift
+			x := g.AreaKm2 / div * shift
 			xys[k] = plotter.XY{X: x, Y: g.Diff}
 			ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: g.Diff})
 			ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
@@ -69,7 +77,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, error) {
 		}
 		l, sc, err := plotter.NewLinePoints(xys)
 		if err != nil {
-			return nil, fmt.Errorf("report: figure model minus null: %w", err)
+			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
 		}
 		dashes := modelDash(i)
 		if j > 0 {
@@ -79,25 +87,26 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, error) {
 		sc.GlyphStyle = markerStyle(i)
 		eb, err := plotter.NewYErrorBars(ep)
 		if err != nil {
-			return nil, fmt.Errorf("report: figure model minus null: %w", err)
+			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
 		}
 		eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
 		eb.CapWidth = vg.Points(3)
 		p.Add(l, sc, eb)
-		p.Legend.Add(an.Model+" − "+modelLabel(r, an.Null), l, sc)
+		ls, gs := l.LineStyle, sc.GlyphStyle
+		items = append(items, legendItem{an.Model + " − " + modelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
 	}
 	if drawn == 0 {
-		return nil, nil
+		return nil, nil, nil
 	}
-	zero, err := plotter.NewLine(plotter.XYs{{X: lo / 1.1, Y: 0}, {X: hi * 1.1, Y: 0}})
+	zero, err := plotter.NewLine(plotter.XYs{{X: lo / 1.25, Y: 0}, {X: hi * 1.25, Y: 0}})
 	if err != nil {
-		return nil, fmt.Errorf("report: figure model minus null: %w", err)
+		return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
 	}
 	zero.LineStyle = draw.LineStyle{Color: nullZeroGrey, Width: vg.Points(0.8)}
 	p.Add(zero)
-	p.Legend.Top = true
-	return p, nil
+	p.X.Min, p.X.Max = lo/1.25, hi*1.25
+	return p, items, nil
 }
 
 // nullZeroGrey draws the line at 0 of the model-minus-null figure.
@@ -121,13 +130,15 @@ func nullGapFigures(r *Results) []figure {
 			"Vertical bars: 95% interval from the per-point placements. Bars wholly above 0: the model beats the null on that extent.",
 		W: twoColumns, H: 90 * vg.Millimeter}
 	f.draw = func(c draw.Canvas) error {
-		p, err := nullGapPlot(r, f.W-vg.Points(30))
-		if err != nil {
+		p, items, err := nullGapPlot(r, f.W-vg.Points(30))
+		if err != nil || p == nil {
 			return err
 		}
-		if p != nil {
-			p.Draw(c)
-		}
+		// The legend sits above the panel, outside the data.
+		legend := legendRows(items, f.W)
+		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
+		drawLegendRows(top, legend)
+		p.Draw(rest)
 		return nil
 	}
 	return []figure{f}

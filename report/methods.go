@@ -294,9 +294,51 @@ func reviewerText(r *Results) string {
 			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extents and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse)
 		}
 	}
+	b.WriteString(reviewerNullText(s))
 	b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
 	if s.Independence.Warn {
 		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so all scores are likely optimistic.", pct(s.Independence.NearShare), NearCells)
+	}
+	return b.String()
+}
+
+// reviewerNullText tells the reviewer, for AUC on the base extent, whether
+// each model beats each null scored on the same test records (the paired
+// test of Sensitivity.AboveNull), or "" when no null was scored.
+func reviewerNullText(s *Sensitivity) string {
+	var beat, not []string
+	null := ""
+	for i := range s.AboveNull {
+		an := &s.AboveNull[i]
+		if an.Metric != "auc" {
+			continue
+		}
+		g := an.gap(an.BaseExtent)
+		if g == nil || !g.Defined {
+			continue
+		}
+		null = an.Null
+		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s, against %s)", an.Model, signed3(g.Diff), signed3(g.Low), signed3(g.High), an.Null)
+		if an.BaseReading == ReadingAbove {
+			beat = append(beat, part)
+		} else {
+			not = append(not, part)
+		}
+	}
+	if null == "" {
+		return ""
+	}
+	var b strings.Builder
+	b.WriteString("We also scored a null that knows only where the training records are (minus the distance to the nearest one; Hijmans 2012) on the same extents and test records. ")
+	if len(beat) > 0 {
+		fmt.Fprintf(&b, "On the base extent the AUC of %s is above the null beyond noise. ", joinList(beat))
+	}
+	if len(not) > 0 {
+		verb := "does"
+		if len(not) > 1 {
+			verb = "do"
+		}
+		fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed the null's beyond noise, so on that extent AUC shows no skill beyond the geography of the records. ", joinList(not), verb)
 	}
 	return b.String()
 }
