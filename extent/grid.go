@@ -11,6 +11,7 @@ import (
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent/geodesy"
+	"areasweep/gdalmsg"
 )
 
 var registerOnce sync.Once
@@ -83,7 +84,7 @@ func OpenGrid(path string) (*Grid, error) {
 	Register()
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read: %w", path, err)
+		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
 	defer ds.Close()
 	if len(ds.Bands()) == 0 {
@@ -91,7 +92,7 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	gt, err := ds.GeoTransform()
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s has no geotransform: %w", path, err)
+		return nil, fmt.Errorf("extent: %s has no geotransform (%s); it must be a georeferenced raster", path, gdalmsg.Cause(err.Error()))
 	}
 	sr := ds.SpatialRef()
 	if sr == nil {
@@ -100,6 +101,9 @@ func OpenGrid(path string) (*Grid, error) {
 	wkt, err := sr.WKT()
 	if err != nil || wkt == "" {
 		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+	}
+	if undefinedCRS(wkt) {
+		return nil, fmt.Errorf("%s: its CRS is undefined (%s): %w", path, crsName(wkt), ErrNoCRS)
 	}
 	st := ds.Structure()
 	g, err := NewGrid(st.SizeX, st.SizeY, gt, wkt)
@@ -457,7 +461,11 @@ func (g *Grid) computeFactors() error {
 			}
 			area, _ := geodesy.PolygonArea(lats, lons)
 			planar := (x1 - x0) * (y0 - y1)
-			g.blockFactor[br*g.factorW+bc] = math.Abs(area) / planar
+			fac := math.Abs(area) / planar
+			if !(fac > 0) || math.IsInf(fac, 0) {
+				return fmt.Errorf("extent: cells near column %d row %d lie outside the area where the raster CRS is defined (their true area is %g); check the raster's CRS and georeferencing with gdalinfo", c0, r0, math.Abs(area))
+			}
+			g.blockFactor[br*g.factorW+bc] = fac
 		}
 	}
 	g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/base64"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -70,7 +71,7 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	layoutVals = append(layoutVals, s.o.Thresholds...)
 	lo, hi, err := r.ApproxRange()
 	if err != nil {
-		return badInput(err)
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	for _, v := range layoutVals {
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
@@ -80,7 +81,10 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	}
 	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
 	if err != nil {
-		return fmt.Errorf("model %s: %w", m.Name, err)
+		if !finiteRange(lo, hi) {
+			return badInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
+		}
+		return internal(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	var pv *pass.Preview
 	if i == 0 {
@@ -97,9 +101,16 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	accs, stats, err := r.Score(g, fam, layout, opt)
 	bar.finish()
 	if err != nil {
-		return badInput(err)
+		var ie *pass.InternalError
+		if errors.As(err, &ie) {
+			return internal(err)
+		}
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
-	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
+	s.logf("%s: read once, block by block (%d blocks), and added to the sums of all %d extents in %.1f s", m.Name, r.Blocks(), len(fam.Members), time.Since(t0).Seconds())
+	if stats.Area > 0 && stats.Min == stats.Max {
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
+	}
 	t0 = time.Now()
 	if opt.Valid != nil {
 		if err := s.clip(opt.Valid); err != nil {
@@ -189,6 +200,10 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	}
 	s.omissions(m.Name, mp)
 	return nil
+}
+
+func finiteRange(lo, hi float64) bool {
+	return !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && !math.IsNaN(lo) && !math.IsNaN(hi) && !math.IsInf(hi-lo, 0)
 }
 
 func firstRatio(sc report.Score) float64 {

@@ -44,6 +44,9 @@ type session struct {
 	stage  string
 	valid  extent.Valid // nil until known: the family is then unclipped
 	nWarn  int          // family warnings already reported
+	// rawDegrees: the table's coordinates, declared projected, all lie in
+	// degree ranges.
+	rawDegrees bool
 }
 
 // recordedPath is the path written into results.json for an input: as
@@ -307,6 +310,14 @@ func (s *session) readPoints() error {
 		return badInput(err)
 	}
 	n := len(recs)
+	// Projected coordinates that all fit in degree ranges are most likely
+	// degrees given the wrong --occurrences-crs (used for a hint).
+	s.rawDegrees = !geographic
+	for _, r := range recs {
+		if math.Abs(r.X) > 180 || math.Abs(r.Y) > 90 {
+			s.rawDegrees = false
+		}
+	}
 	lons := make([]float64, n)
 	lats := make([]float64, n)
 	for i, r := range recs {
@@ -419,13 +430,38 @@ func (s *session) readPoints() error {
 		}
 	}
 	if c.Test == 0 {
-		return badInput(fmt.Errorf("%s: no test point falls on a valid cell of the raster; nothing can be scored", o.Occurrences))
+		return badInput(s.noTestPoint(r))
 	}
 	if c.Train == 0 {
 		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
 	}
 	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
 	return nil
+}
+
+// noTestPoint explains why no test point can be scored, blaming the input
+// that is at fault: a raster without data, points outside the raster (with
+// a hint when degrees were given a projected --occurrences-crs, or the
+// other way round), or test points on no-data cells.
+func (s *session) noTestPoint(r *pass.Raster) error {
+	o, c := s.o, s.res.PointCounts
+	if c.NoData > 0 {
+		if _, _, err := r.ExactRange(); errors.Is(err, pass.ErrNoData) {
+			return fmt.Errorf("model %s: %w", s.models[0].Name, err)
+		}
+	}
+	msg := fmt.Sprintf("%s: no test point falls on a cell with data of %s (%s); nothing can be scored", o.Occurrences, s.models[0].Name, s.models[0].Path)
+	if c.OutsideRaster > 0 && c.NoData == 0 && c.Thinned == 0 {
+		msg = fmt.Sprintf("%s: every point lies outside the raster %s; nothing can be scored", o.Occurrences, s.models[0].Path)
+		if o.OccurrencesCRS != "" && s.rawDegrees {
+			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
+		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
+			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
+		} else {
+			msg += "; check that the points and the raster cover the same area"
+		}
+	}
+	return errors.New(msg)
 }
 
 func roleIndex(r string) int {

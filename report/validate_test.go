@@ -1,0 +1,94 @@
+package report
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestValidateSample: the synthetic run made with numpy/SciPy
+// (testdata/report/sample_results.json, see gen_sample.py) holds only
+// values a run can produce, so it passes.
+func TestValidateSample(t *testing.T) {
+	r := loadSample(t)
+	if err := Validate(r); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestValidateRefuses: each edit makes one value impossible; Validate must
+// name the field and the value.
+func TestValidateRefuses(t *testing.T) {
+	firstScored := func(r *Results) *Score {
+		for i := range r.Scores {
+			if r.Scores[i].Scored {
+				return &r.Scores[i]
+			}
+		}
+		t.Fatal("sample has no scored score")
+		return nil
+	}
+	cases := []struct {
+		name string
+		edit func(r *Results)
+		want string
+	}{
+		{"AUC -5", func(r *Results) { firstScored(r).AUC = -5 }, ".auc: -5 is outside [0, 1]"},
+		{"AUC above 1", func(r *Results) { firstScored(r).AUCUnweighted = 1.5 }, ".auc_unweighted: 1.5"},
+		{"negative area", func(r *Results) { r.Extents[0].AreaKm2 = -1 }, "extents[0]"},
+		{"repeated extent id", func(r *Results) { r.Extents[1].ID = r.Extents[0].ID }, "id is empty or repeated"},
+		{"unknown model", func(r *Results) { r.Scores[0].Model = "ghost" }, `model "ghost" is not in models`},
+		{"omission above 1", func(r *Results) { firstScored(r).Thresholds[0].Omission = 2 }, ".omission: 2"},
+		{"successes above n", func(r *Results) { th := &firstScored(r).Thresholds[0]; th.Successes = th.N + 1 }, "do not fit"},
+		{"E outside (0,1)", func(r *Results) { r.Settings.E = []float64{1.5} }, "settings.e[0]"},
+		{"point role", func(r *Results) { r.Points[0].Role = "both" }, `"both" is not train or test`},
+		{"curve lengths", func(r *Results) { r.Curves[0].Y = r.Curves[0].Y[:1] }, "x has"},
+		{"boyce index", func(r *Results) {
+			for i := range r.Scores {
+				if r.Scores[i].Boyce != nil {
+					r.Scores[i].Boyce.Index = 3
+					return
+				}
+			}
+		}, "boyce.index: 3"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			c.edit(r)
+			err := Validate(r)
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("Validate = %v, want it to contain %q", err, c.want)
+			}
+		})
+	}
+}
+
+// FuzzResults feeds arbitrary results.json files through what `areasweep
+// report` does before writing: decode, Validate, and for files that pass,
+// Analyze and the figure and methods text builders. Nothing may panic.
+func FuzzResults(f *testing.F) {
+	data, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(data)
+	f.Add([]byte(`{"schema_version":1}`))
+	f.Add([]byte(`{"schema_version":1,"models":[{"name":"m"}],"extents":[{"id":"a"}],"scores":[{"model":"m","extent":"a","scored":true,"auc":0.5}]}`))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		var r Results
+		if json.Unmarshal(b, &r) != nil || r.SchemaVersion != SchemaVersion {
+			return
+		}
+		if Validate(&r) != nil {
+			return
+		}
+		if Analyze(&r) != nil {
+			return
+		}
+		_ = figures(&r)
+		_ = methodsText(&r)
+	})
+}
