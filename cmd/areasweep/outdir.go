@@ -17,8 +17,9 @@ import (
 //   - --out may not be, or contain, a folder holding an input, and may not
 //     lie inside an input that is itself a folder (a FileGDB); --force does
 //     not change this.
-//   - A lock file beside --out (.NAME.areasweep-lock) is held with flock for
-//     the whole run. A second run on the same --out is refused while the
+//   - A lock file beside --out (.NAME.areasweep-lock, holding the owner's
+//     PID) is held with flock from before the first write to the end, and
+//     removed then. A second run on the same --out is refused while the
 //     first runs. The kernel drops the lock when a process dies, so holding
 //     it proves that every staging folder of this --out left behind belongs
 //     to a dead run: those are removed at the start.
@@ -112,7 +113,7 @@ func openOut(out string, force bool, inputs []string) (*outDir, error) {
 			return nil, badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, badInput(fmt.Errorf("--out %s cannot be used: %v", out, err))
+		return nil, badInput(fmt.Errorf("--out %s cannot be used: %v", out, errText(err)))
 	}
 	if err := d.makeParent(out); err != nil {
 		return nil, err
@@ -255,25 +256,40 @@ func (d *outDir) removeCreated() {
 func (d *outDir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lockSuffix) }
 
 // takeLock holds an exclusive flock on the lock file beside --out, and
-// writes the owner's PID into it for the message a second run prints.
+// writes the owner's PID into it for the message a second run prints. The
+// file is removed when the run ends; a run that locked a file another run
+// had just removed sees that the path now names another file, and tries
+// again.
 func (d *outDir) takeLock(out string) error {
-	f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^umask)
-	if err != nil {
-		return badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
-	}
-	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
-		owner, _ := os.ReadFile(d.lockPath())
-		f.Close()
-		who := "another areasweep run"
-		if pid := strings.TrimSpace(string(owner)); pid != "" {
-			who += " (process " + pid + ")"
+	for try := 0; ; try++ {
+		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^umask)
+		if err != nil {
+			return badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
 		}
-		return badInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
+		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
+			owner, _ := os.ReadFile(d.lockPath())
+			f.Close()
+			who := "another areasweep run"
+			if pid := strings.TrimSpace(string(owner)); pid != "" {
+				who += " (process " + pid + ")"
+			}
+			return badInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
+		}
+		if sameFile(f, d.lockPath()) || try == 10 {
+			f.Truncate(0)
+			f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
+			d.lock = f
+			return nil
+		}
+		f.Close()
 	}
-	f.Truncate(0)
-	f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
-	d.lock = f
-	return nil
+}
+
+// sameFile reports whether the open file f is still the file at path.
+func sameFile(f *os.File, path string) bool {
+	a, err1 := f.Stat()
+	b, err2 := os.Stat(path)
+	return err1 == nil && err2 == nil && os.SameFile(a, b)
 }
 
 // cleanDead removes staging folders of this --out left by runs that died
@@ -322,7 +338,8 @@ func (d *outDir) abort() {
 
 func (d *outDir) release() {
 	if d.lock != nil {
-		d.lock.Close() // drops the flock
+		os.Remove(d.lockPath()) // while still holding the lock
+		d.lock.Close()          // drops the flock
 		d.lock = nil
 	}
 	d.removeCreated()

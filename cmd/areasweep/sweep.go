@@ -99,9 +99,6 @@ func sweepInto(o *RunOptions, d *outDir) error {
 	if err := s.readInputs(); err != nil {
 		return err
 	}
-	if err := s.checkMemory(); err != nil {
-		return err
-	}
 	if d == nil {
 		var err error
 		if d, err = openOut(o.Out, o.Force, o.inputPaths()); err != nil {
@@ -259,6 +256,9 @@ func (s *session) readInputs() error {
 	g := s.grid
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
+	if err := s.checkMemory(); err != nil {
+		return err
+	}
 	if err := s.readPoints(); err != nil {
 		return err
 	}
