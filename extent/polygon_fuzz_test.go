@@ -25,7 +25,7 @@ func geoJSONFrom(b []byte) string {
 		return c
 	}
 	coord := func() float64 {
-		if len(b) >= 8 && next()%16 == 0 {
+		if len(b) >= 9 && next()%16 == 0 {
 			v := math.Float64frombits(binary.LittleEndian.Uint64(b))
 			b = b[8:]
 			if math.IsNaN(v) || math.IsInf(v, 0) {

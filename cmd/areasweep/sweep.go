@@ -170,7 +170,7 @@ func sweepInto(o *RunOptions, d *outDir) error {
 
 // writeFailed words an error while writing the outputs (exit 1).
 func writeFailed(err error) error {
-	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", errText(err))
+	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(errText(err)))
 }
 
 // libraryMessages moves the messages GDAL and its libraries raised outside
