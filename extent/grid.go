@@ -339,8 +339,16 @@ func wrapInto(lon, west float64) float64 {
 		return math.NaN()
 	}
 	if math.Abs(lon-west) > 3600 {
-		// Far outside any grid: one step instead of thousands of turns.
-		lon -= 360 * math.Floor((lon-west)/360)
+		// Far outside any grid: one exact remainder instead of thousands
+		// of turns (adding 360 to 1e300 would never move it).
+		r := math.Mod(lon-west, 360)
+		if r < 0 {
+			r += 360
+		}
+		if r >= 360 {
+			r = 0
+		}
+		return west + r
 	}
 	for lon < west {
 		lon += 360

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"sort"
 	"strings"
 
@@ -143,7 +144,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				return nil, warns, fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
 			}
 		}
-		if geom == nil || geom.Empty() {
+		if noGeometry(geom) {
 			warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, fid))
 			f.Close()
 			continue
@@ -168,6 +169,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		own, err := godal.NewGeometryFromWKB(b, lsr)
 		if err != nil {
 			return nil, warns, fmt.Errorf("extent: %s feature %d: %s", path, fid, gdalmsg.Cause(err.Error()))
+		}
+		if msg := coordinateProblem(own, lsr.Geographic()); msg != "" {
+			return nil, warns, fmt.Errorf("extent: %s feature %d %s; check the coordinates and the layer's CRS", path, fid, msg)
 		}
 		if !own.Valid() {
 			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired; fix it in a GIS", path, fid)
@@ -199,6 +203,50 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// noGeometry reports a feature without geometry: godal returns a Geometry
+// holding a NULL handle then, and asking GDAL whether that is empty makes
+// it print "Pointer 'hGeom' is NULL"; the handle is read by reflection
+// instead.
+func noGeometry(g *godal.Geometry) bool {
+	if g == nil {
+		return true
+	}
+	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && h.Kind() == reflect.Pointer && h.IsNil() {
+		return true
+	}
+	return g.Empty()
+}
+
+// coordinateProblem says what is wrong with the coordinates of g, or "":
+// not finite, or for a latitude-longitude layer a latitude beyond the
+// poles or a longitude beyond one and a half turns.
+func coordinateProblem(g *godal.Geometry, geographic bool) string {
+	b, err := g.Bounds()
+	if err != nil {
+		return "has coordinates that cannot be read"
+	}
+	for _, v := range b {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return "has a coordinate that is not a finite number"
+		}
+	}
+	if !geographic {
+		return ""
+	}
+	const eps = 1e-9
+	switch {
+	case b[1] < -90-eps:
+		return fmt.Sprintf("has a vertex at latitude %g, beyond the south pole", b[1])
+	case b[3] > 90+eps:
+		return fmt.Sprintf("has a vertex at latitude %g, beyond the north pole", b[3])
+	case b[0] < -540:
+		return fmt.Sprintf("has a vertex at longitude %g, beyond -540 degrees", b[0])
+	case b[2] > 540:
+		return fmt.Sprintf("has a vertex at longitude %g, beyond 540 degrees", b[2])
+	}
+	return ""
 }
 
 // undefinedCRS reports a CRS that only says it is unknown: the GeoPackage
@@ -235,7 +283,7 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 		}
 		// geom belongs to f: everything is read before f.Close.
 		msg := ""
-		if g := f.Geometry(); g != nil && !g.Empty() {
+		if g := f.Geometry(); !noGeometry(g) {
 			msg = polygonProblem(g)
 		}
 		f.Close()
@@ -301,7 +349,7 @@ func invalidFeatures(layer godal.Layer) []int {
 		if f == nil {
 			break
 		}
-		if g := f.Geometry(); g != nil && !g.Empty() && !g.Valid() {
+		if g := f.Geometry(); !noGeometry(g) && !g.Valid() {
 			bad = append(bad, n)
 		}
 		f.Close()

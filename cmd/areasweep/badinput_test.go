@@ -291,6 +291,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	lineLayer := f.file("line.geojson", polygonJSON(`{"type":"LineString","coordinates":[[14,43],[15,44]]}`, ``))
 	degenerate := f.file("degenerate.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[14,43],[15,44],[16,45],[14,43]]]}`, ``))
 	mixedCollection := f.file("collection.geojson", polygonJSON(`{"type":"GeometryCollection","geometries":[`+squareGeom+`,{"type":"Point","coordinates":[14,43]}]}`, ``))
+	beyondPole := f.file("pole.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[14,43],[16,43],[16,99],[14,43]]]}`, ``))
 	emptyLayer := f.file("empty.geojson", `{"type":"FeatureCollection","features":[]}`)
 	notVector := f.file("notvector.gpkg", "plain text\n")
 	antimeridian := f.file("antimeridian.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[170,41],[-170,41],[-170,46],[170,46],[170,41]]]}`, ``))
@@ -488,6 +489,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region line", f.withRegion(lineLayer), 2, []string{"line.geojson feature 1", "linestring"}, "", ""},
 		{"region degenerate polygon", f.withRegion(degenerate), 2, []string{"degenerate.geojson feature 1", "degenerate"}, "", ""},
 		{"region collection with a point", f.withRegion(mixedCollection), 2, []string{"collection.geojson feature 1", "part 2", "point"}, "", ""},
+		{"region vertex beyond the pole", f.withRegion(beyondPole), 2, []string{"pole.geojson feature 1", "latitude 99"}, "", ""},
 		{"region without CRS", f.withRegion(noCRSshp), 2, []string{"nocrs.shp", "no CRS"}, "", ""},
 		{"region undefined CRS", f.withRegion(undefGPKG), 2, []string{"undefined.gpkg", "undefined CRS", "Undefined geographic SRS"}, "", ""},
 		{"region outside the raster", f.withRegion(f.far), 2, []string{"far.geojson", "covers no cell"}, "", ""},

@@ -337,3 +337,29 @@ func TestVersionAndHelp(t *testing.T) {
 		}
 	}
 }
+
+// TestLibraryMessagesStayOffTerminal: a good run whose region needs
+// GEOS's repair (a bow-tie) and holds a feature without geometry prints
+// no raw GDAL or GEOS line; the repair is reported as a warning naming
+// the feature, and the library's own words go to run.log only.
+func TestLibraryMessagesStayOffTerminal(t *testing.T) {
+	s := newSmallStudy(t)
+	region := filepath.Join(s.dir, "bowtie.geojson")
+	os.WriteFile(region, []byte(`{"type":"FeatureCollection","features":[`+
+		`{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,46.5],[18.5,41.5],[12.5,46.5],[12.5,41.5]]]}},`+
+		`{"type":"Feature","properties":{},"geometry":null}]}`), 0o644)
+	out := filepath.Join(t.TempDir(), "res")
+	args := []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", region, "--iterations", "5", "--out", out}
+	_, se, code := runBin(t, args...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	if m := forbidden.FindString(se); m != "" {
+		t.Errorf("stderr holds %q:\n%s", m, se)
+	}
+	for _, w := range []string{"bowtie.geojson feature 1 had invalid geometry", "bowtie.geojson feature 2 has no geometry"} {
+		if !strings.Contains(se, w) {
+			t.Errorf("stderr lacks %q:\n%s", w, se)
+		}
+	}
+}
