@@ -363,3 +363,67 @@ func TestLibraryMessagesStayOffTerminal(t *testing.T) {
 		}
 	}
 }
+
+// TestConstantModelAndThinningSummary: a model with one value everywhere
+// runs but is warned about, and 120 duplicate presences are summarised in
+// one log line instead of one line each.
+func TestConstantModelAndThinningSummary(t *testing.T) {
+	s := newSmallStudy(t)
+	f := &badFixture{smallStudy: s}
+	wgs := `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+	flat := f.rasterWith(t, "flat.tif", s.gt, wgs, func(i int) float64 {
+		if math.IsNaN(s.vals[i]) {
+			return math.NaN()
+		}
+		return 0.5
+	})
+	var occ strings.Builder
+	occ.WriteString("lon,lat,role\n13.1,42.6,train\n14.1,43.6,train\n15.1,42.6,train\n13.5,43.0,test\n")
+	for i := 0; i < 120; i++ {
+		occ.WriteString("13.5,43.0,test\n")
+	}
+	occPath := filepath.Join(s.dir, "dups.csv")
+	os.WriteFile(occPath, []byte(occ.String()), 0o644)
+	out := filepath.Join(t.TempDir(), "res")
+	_, se, code := runBin(t, "run", "--model", "m="+flat, "--occurrences", occPath, "--region", s.region, "--iterations", "5", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	if !strings.Contains(se, "model m has the same value (0.5) on every cell") {
+		t.Errorf("no warning about the constant model:\n%s", se)
+	}
+	if n := strings.Count(se, "thinned:"); n != 1 || !strings.Contains(se, "and 110 more") {
+		t.Errorf("%d thinned lines (want one summary):\n%s", n, se)
+	}
+}
+
+// TestDemoStoppedCleansInputs: the demo writes its inputs inside the run's
+// staging folder, so a SIGTERM removes them with it.
+func TestDemoStoppedCleansInputs(t *testing.T) {
+	parent := t.TempDir()
+	out := filepath.Join(parent, "demo")
+	cmd := exec.Command(areasweepBin, "demo", "--out", out, "--quiet")
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	waitForStage(t, out)
+	cmd.Process.Signal(syscall.SIGTERM)
+	err := cmd.Wait()
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 143 {
+		// The demo may have finished before the signal; then it must be whole.
+		if err != nil {
+			t.Fatalf("demo: %v", err)
+		}
+		if _, err := os.Stat(filepath.Join(out, "inputs", "study.yaml")); err != nil {
+			t.Fatalf("demo finished without its inputs: %v", err)
+		}
+	} else if _, err := os.Stat(out); err == nil {
+		t.Error("stopped demo left --out behind")
+	}
+	entries, _ := os.ReadDir(parent)
+	for _, e := range entries {
+		if e.Name() != "demo" {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+}
