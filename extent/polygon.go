@@ -299,7 +299,7 @@ func polygonProblem(g *godal.Geometry) string {
 	case godal.GTPolygon, godal.GTMultiPolygon, godal.GTPolygon25D, godal.GTMultiPolygon25D:
 		// An invalid polygon (a bow-tie's halves cancel) is measured after
 		// repair, in readUnits.
-		if g.Valid() && !(g.Area() > 0) {
+		if !(g.Area() > 0) && g.Valid() {
 			return "is a degenerate polygon with no area (its points lie on a line or repeat)"
 		}
 		return ""
