@@ -274,11 +274,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	shifted := f.rasterWith(t, "shifted.tif", [6]float64{10.5, 0.25, 0, 48, 0, -0.25}, wgs, ridge)
 	huge := filepath.Join(f.dir, "huge.tif")
 	{
-		ds, err := godal.Create(godal.GTiff, huge, 1, godal.Byte, 160000, 80000, godal.CreationOption("TILED=YES", "SPARSE_OK=TRUE", "BLOCKXSIZE=512", "BLOCKYSIZE=512"))
+		ds, err := godal.Create(godal.GTiff, huge, 1, godal.Byte, 360000, 180000, godal.CreationOption("TILED=YES", "SPARSE_OK=TRUE", "BLOCKXSIZE=512", "BLOCKYSIZE=512"))
 		if err != nil {
 			t.Fatal(err)
 		}
-		ds.SetGeoTransform([6]float64{-180, 0.00225, 0, 90, 0, -0.00225})
+		ds.SetGeoTransform([6]float64{-180, 0.001, 0, 90, 0, -0.001})
 		ds.SetProjection(wgs)
 		ds.Bands()[0].SetNoData(255)
 		if err := ds.Close(); err != nil {
@@ -479,7 +479,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
-		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.1,42.6,train\n13.5,43,test\n")), 2, []string{"memory", "160000x80000", "gdalwarp"}, "", ""},
+		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.1,42.6,train\n13.5,43,test\n")), 2, []string{"memory", "360000x180000", "gdalwarp"}, "", ""},
 
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
