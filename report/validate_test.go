@@ -4,8 +4,10 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"runtime/debug"
 	"strings"
 	"testing"
+	"time"
 )
 
 // TestValidateSample: the synthetic run made with numpy/SciPy
@@ -78,6 +80,13 @@ func FuzzResults(f *testing.F) {
 	f.Add([]byte(`{"schema_version":1}`))
 	f.Add([]byte(`{"schema_version":1,"models":[{"name":"m"}],"extents":[{"id":"a"}],"scores":[{"model":"m","extent":"a","scored":true,"auc":0.5}]}`))
 	f.Fuzz(func(t *testing.T, b []byte) {
+		// A hang is a failure too: after 20 s the worker dies with every
+		// goroutine's stack.
+		stop := time.AfterFunc(20*time.Second, func() {
+			debug.SetTraceback("all")
+			panic("FuzzResults: one input took over 20 s")
+		})
+		defer stop.Stop()
 		var r Results
 		if json.Unmarshal(b, &r) != nil || r.SchemaVersion != SchemaVersion {
 			return
