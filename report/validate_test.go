@@ -77,6 +77,25 @@ func FuzzResults(f *testing.F) {
 		f.Fatal(err)
 	}
 	f.Add(data)
+	// A small seed cut from the sample (one model, three extents, no
+	// points or curves), so that the mutator spends its time on structure
+	// rather than on 350 kB of numbers.
+	var small Results
+	if err := json.Unmarshal(data, &small); err != nil {
+		f.Fatal(err)
+	}
+	small.Models = small.Models[:1]
+	small.Extents = small.Extents[:3]
+	var scores []Score
+	for _, sc := range small.Scores {
+		if sc.Model == small.Models[0].Name && (sc.Extent == small.Extents[0].ID || sc.Extent == small.Extents[1].ID || sc.Extent == small.Extents[2].ID) {
+			scores = append(scores, sc)
+		}
+	}
+	small.Scores, small.Points, small.Curves, small.Rings, small.Omissions, small.Preview = scores, nil, nil, nil, nil, nil
+	if b, err := json.Marshal(&small); err == nil {
+		f.Add(b)
+	}
 	f.Add([]byte(`{"schema_version":1}`))
 	f.Add([]byte(`{"schema_version":1,"models":[{"name":"m"}],"extents":[{"id":"a"}],"scores":[{"model":"m","extent":"a","scored":true,"auc":0.5}]}`))
 	f.Fuzz(func(t *testing.T, b []byte) {
