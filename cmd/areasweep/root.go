@@ -130,7 +130,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintf(errOut, "areasweep: %s\n", oneLine(err.Error()))
+	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
 	var ie inputError
 	var ne internalError
 	switch {
@@ -141,12 +141,6 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		return exitInternal
 	}
 	return exitFailed
-}
-
-// oneLine keeps a message on one line unless it is laid out on purpose
-// (a study-file example indented below the message).
-func oneLine(s string) string {
-	return strings.TrimRight(s, "\n")
 }
 
 func signalName(s os.Signal) string {
