@@ -16,6 +16,7 @@ import (
 	"github.com/paulmach/orb"
 
 	"areasweep/extent/geodesy"
+	"areasweep/extent/gdalmsg"
 )
 
 // MaxMembers is the largest family: one bit of a uint64 per member.
@@ -681,7 +682,7 @@ func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error 
 			if sel == nil {
 				sel = units[i].geom
 			} else if sel, err = sel.Union(units[i].geom); err != nil {
-				return fmt.Errorf("extent: %s: union of units failed: %w", spec.Ecoregions, err)
+				return fmt.Errorf("extent: %s: union of units failed (%s); check the unit geometries in a GIS", spec.Ecoregions, gdalmsg.Cause(err.Error()))
 			}
 		}
 	}
@@ -695,7 +696,7 @@ func (b *builder) ecoregions(spec Spec, baseBit uint64, trainCells []int) error 
 		}
 		hit, err := units[i].geom.Intersects(sel)
 		if err != nil {
-			return fmt.Errorf("extent: %s unit %q: %w", spec.Ecoregions, units[i].ID, err)
+			return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
 		}
 		if hit {
 			touching = append(touching, i)

@@ -285,5 +285,7 @@ func (c *cumulative) auc(p *presences, cells bool) float64 {
 		hi += h + carry
 	}
 	num := float64(hi)*0x1p64 + float64(lo)
-	return num / (2 * float64(p.n) * float64(total))
+	// num <= 2 n W exactly; the conversions and the division may round
+	// past 1 by an ulp, which is not a value an AUC can take.
+	return math.Min(1, num/(2*float64(p.n)*float64(total)))
 }

@@ -17,52 +17,6 @@ import (
 	"areasweep/report"
 )
 
-// prepareOut checks the output directory and returns a fresh staging
-// directory beside it. Everything is written into the stage and moved into
-// place at the end, so a failed run leaves no half-written output.
-func prepareOut(out string, force bool) (string, error) {
-	if st, err := os.Stat(out); err == nil {
-		if !st.IsDir() {
-			return "", badInput(fmt.Errorf("--out %s exists and is not a directory", out))
-		}
-		entries, err := os.ReadDir(out)
-		if err != nil {
-			return "", badInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
-		}
-		if len(entries) > 0 && !force {
-			return "", badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace it, or choose another directory", out))
-		}
-	}
-	parent := filepath.Dir(filepath.Clean(out))
-	if err := os.MkdirAll(parent, 0o755); err != nil {
-		return "", badInput(fmt.Errorf("cannot create %s: %v", parent, err))
-	}
-	stage, err := os.MkdirTemp(parent, "."+filepath.Base(out)+".partial-")
-	if err != nil {
-		return "", badInput(fmt.Errorf("cannot write in %s: %v", parent, err))
-	}
-	return stage, nil
-}
-
-// finishOut moves the stage into place, replacing an existing out.
-func finishOut(stage, out string) error {
-	if _, err := os.Stat(out); err == nil {
-		old := stage + ".old"
-		if err := os.Rename(out, old); err != nil {
-			return fmt.Errorf("cannot replace %s: %w", out, err)
-		}
-		if err := os.Rename(stage, out); err != nil {
-			os.Rename(old, out)
-			return fmt.Errorf("cannot move results into %s: %w", out, err)
-		}
-		return os.RemoveAll(old)
-	}
-	if err := os.Rename(stage, out); err != nil {
-		return fmt.Errorf("cannot move results into %s: %w", out, err)
-	}
-	return nil
-}
-
 // writeAtomic writes data to a temporary file beside path and renames it.
 func writeAtomic(path string, data []byte) error {
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-")
@@ -78,7 +32,8 @@ func writeAtomic(path string, data []byte) error {
 		os.Remove(tmp.Name())
 		return err
 	}
-	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+	if err := os.Chmod(tmp.Name(), 0o666&^umask); err != nil {
+		os.Remove(tmp.Name())
 		return err
 	}
 	return os.Rename(tmp.Name(), path)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/base64"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -49,9 +50,12 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	defer r.Close()
 	// The fine histogram (Boyce) spans the exact value range, so that the
 	// same pixels give the same index whatever the file layout.
-	lo, hi, _, err := r.ExactRange()
+	lo, hi, ok, err := r.ExactRange()
 	if err != nil {
-		return badInput(err)
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	if !ok {
+		return badInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
 	}
 	role := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
 	if m.Null {
@@ -101,7 +105,10 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	}
 	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
 	if err != nil {
-		return fmt.Errorf("model %s: %w", m.Name, err)
+		if !finiteRange(lo, hi) {
+			return badInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
+		}
+		return internal(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	var pv *pass.Preview
 	if i == 0 {
@@ -118,9 +125,16 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	accs, stats, err := src.Score(g, fam, layout, opt)
 	bar.finish()
 	if err != nil {
-		return badInput(err)
+		var ie *pass.InternalError
+		if errors.As(err, &ie) {
+			return internal(err)
+		}
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
-	s.logf("%s: one pass over %d blocks in %.1f s", m.Name, src.Blocks(), time.Since(t0).Seconds())
+	s.logf("%s: read once, block by block (%d blocks), and added to the sums of all %d extents in %.1f s", m.Name, src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
+	if stats.Area > 0 && stats.Min == stats.Max {
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
+	}
 	t0 = time.Now()
 	if opt.Valid != nil {
 		if err := s.clip(opt.Valid); err != nil {
@@ -231,6 +245,10 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	return nil
 }
 
+func finiteRange(lo, hi float64) bool {
+	return !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && !math.IsNaN(lo) && !math.IsNaN(hi) && !math.IsInf(hi-lo, 0)
+}
+
 func firstRatio(sc report.Score) string {
 	if len(sc.PartialROC) == 0 || !sc.PartialROC[0].Defined {
 		return "undefined"
@@ -245,18 +263,7 @@ func firstRatio(sc report.Score) string {
 //
 // with exact areas from the accumulator's bins (Hanley & McNeil 1982).
 func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
-	if len(vals) == 0 || a.Area() == 0 {
-		return 0, false
-	}
-	sum := 0.0
-	for _, v := range vals {
-		below, equal, _, ok := a.AreaAt(v)
-		if !ok {
-			return 0, false
-		}
-		sum += float64(below) + float64(equal)/2
-	}
-	return sum / (float64(len(vals)) * float64(a.Area())), true
+	return a.AUCAgainst(vals)
 }
 
 // rings decomposes each nested chain: for consecutive members A inside B,

@@ -119,8 +119,19 @@ func (e *StudyError) Unwrap() error { return e.Err }
 // extra paths after '=', occurrences, region, ecoregions, out) are resolved
 // against the directory holding the study file.
 func LoadStudy(path string) (*Study, error) {
-	data, err := os.ReadFile(path)
+	if err := checkRegular(path, "study file"); err != nil {
+		return nil, err
+	}
+	f, err := os.Open(path)
 	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes, 0))
+	if err != nil {
+		if errors.Is(err, ErrTooLarge) {
+			return nil, &StudyError{File: path, Err: err}
+		}
 		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
 	}
 	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))

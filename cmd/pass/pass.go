@@ -1,15 +1,18 @@
 package pass
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/bits"
 	"runtime"
+	"runtime/debug"
 	"sync"
 
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
 	"areasweep/metrics"
 )
 
@@ -17,6 +20,15 @@ import (
 // sum: 1/4096 m^2, so that the whole Earth (5.1e14 m^2) is 2.1e18 units,
 // inside int64, while a 30 m cell keeps 7 significant digits.
 const AreaUnitsPerKm2 = 1e6 * 4096
+
+// InternalError is an error of the pass that is a bug, not a problem of
+// the raster: a worker that failed, or sums that would not merge.
+type InternalError struct{ Err error }
+
+func (e *InternalError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the underlying error.
+func (e *InternalError) Unwrap() error { return e.Err }
 
 // Raster is an open single-band model raster.
 type Raster struct {
@@ -35,7 +47,7 @@ func Open(path string) (*Raster, error) {
 	extent.Register()
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
-		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read: %w", path, err)
+		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
 	bands := ds.Bands()
 	if len(bands) == 0 {
@@ -84,7 +96,7 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 			continue
 		}
 		if err := r.band.Read(c%g.Width, c/g.Width, buf, 1, 1); err != nil {
-			return nil, nil, fmt.Errorf("pass: read %s at column %d row %d: %w", r.Path, c%g.Width, c/g.Width, err)
+			return nil, nil, fmt.Errorf("pass: %s: the cell at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, c%g.Width, c/g.Width, gdalmsg.Cause(err.Error()))
 		}
 		r.decode(buf)
 		vals[i], ok[i] = buf[0], r.valid(buf[0])
@@ -92,21 +104,9 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	return vals, ok, nil
 }
 
-// ApproxRange returns GDAL's approximate minimum and maximum of the band
-// (from overviews or a sample of blocks), in model values: the range of the
-// fine histogram.
-// It does not need a full read.
-func (r *Raster) ApproxRange() (lo, hi float64, err error) {
-	st, err := r.band.ComputeStatistics(godal.Approximate())
-	if err != nil {
-		return 0, 0, fmt.Errorf("pass: statistics of %s: %w", r.Path, err)
-	}
-	lo, hi = st.Min*r.scale+r.offset, st.Max*r.scale+r.offset
-	if lo > hi {
-		lo, hi = hi, lo
-	}
-	return lo, hi, nil
-}
+// ErrNoData is returned when a raster has no cell with data (ExactRange
+// finds no valid value).
+var ErrNoData = errors.New("pass: the raster has no cell with data")
 
 // block is one block of cells read from the raster.
 type block struct {
@@ -124,7 +124,7 @@ func (r *Raster) each(out chan<- block, free chan []float64) error {
 		buf := <-free
 		buf = buf[:b.W*b.H]
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
+			return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, b.X0, b.Y0, gdalmsg.Cause(err.Error()))
 		}
 		out <- block{b.X0, b.Y0, b.W, b.H, buf}
 	}
@@ -302,6 +302,7 @@ func score(src source, g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	type partial struct {
 		accs  []*metrics.Accumulator
 		stats Stats
+		err   error
 	}
 	parts := make([]partial, workers)
 	doneBlocks := make(chan struct{}, workers)
@@ -315,6 +316,17 @@ func score(src source, g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		wg.Add(1)
 		go func(p *partial) {
 			defer wg.Done()
+			defer func() {
+				// A bug in a worker becomes an error of the pass instead of
+				// killing the process; the remaining blocks are drained.
+				if v := recover(); v != nil {
+					p.err = fmt.Errorf("pass: internal error in a scoring worker: %v\n%s", v, debug.Stack())
+					for b := range blocks {
+						free <- b.buf
+						doneBlocks <- struct{}{}
+					}
+				}
+			}()
 			areas := make([]float64, g.Width)
 			weights := make([]int64, g.Width)
 			// Statistics stay local until the end: workers' partials sit
@@ -341,12 +353,17 @@ func score(src source, g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	if err := <-errc; err != nil {
 		return nil, Stats{}, err
 	}
+	for w := range parts {
+		if parts[w].err != nil {
+			return nil, Stats{}, &InternalError{parts[w].err}
+		}
+	}
 	out := parts[0].accs
 	stats := parts[0].stats
 	for w := 1; w < workers; w++ {
 		for k := range out {
 			if err := out[k].Merge(parts[w].accs[k]); err != nil {
-				return nil, Stats{}, fmt.Errorf("pass: internal: %w", err)
+				return nil, Stats{}, &InternalError{fmt.Errorf("pass: merging the workers' sums: %w", err)}
 			}
 		}
 		stats.merge(parts[w].stats)

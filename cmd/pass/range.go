@@ -7,8 +7,8 @@ import (
 
 // ExactRange returns the smallest and largest valid model value of the
 // band (after no-data, scale and offset), read from every block at full
-// resolution. Unlike ApproxRange it does not depend on how the file is
-// stored (tiled or striped, with or without overviews), so the fine
+// resolution. Unlike GDAL's approximate statistics it does not depend on
+// how the file is stored (tiled or striped, with or without overviews), so the fine
 // histogram the Boyce index reads is the same for the same pixels. ok is
 // false when the band has no valid value.
 func (r *Raster) ExactRange() (lo, hi float64, ok bool, err error) {
