@@ -15,8 +15,8 @@ import (
 
 	"github.com/paulmach/orb"
 
-	"areasweep/extent/geodesy"
 	"areasweep/extent/gdalmsg"
+	"areasweep/extent/geodesy"
 )
 
 // MaxMembers is the largest family: one bit of a uint64 per member.

@@ -10,8 +10,8 @@ import (
 
 	"github.com/airbusgeo/godal"
 
-	"areasweep/extent/geodesy"
 	"areasweep/extent/gdalmsg"
+	"areasweep/extent/geodesy"
 )
 
 var registerOnce sync.Once

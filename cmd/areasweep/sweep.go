@@ -19,8 +19,8 @@ import (
 	"areasweep/cmd/inputs"
 	"areasweep/cmd/pass"
 	"areasweep/extent"
-	"areasweep/metrics"
 	"areasweep/extent/gdalmsg"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
