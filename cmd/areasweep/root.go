@@ -186,7 +186,7 @@ func newRootCmd(streams *IO) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "areasweep",
 		Short: "Rescore a distribution model on a family of extents: is the score the model's or the extent's?",
-		Long: `areasweep builds a family of alternative calibration/evaluation extents from a base
+		Long: `areasweep builds a family of alternative evaluation extents from a base
 study region (geodesic buffers in and out, buffers around occurrences, convex hulls,
 occupied ecoregion units, the whole raster), recomputes full ROC AUC, partial ROC,
 threshold omission with binomial tests and the continuous Boyce index on each, and
