@@ -1,5 +1,5 @@
-// Package extent builds the family of alternative calibration and
-// evaluation areas of a study and puts each one on the model raster's grid
+// Package extent builds the family of alternative evaluation extents
+// (backgrounds) of a study and puts each one on the model raster's grid
 // as cell membership.
 //
 // A Grid is the model raster's north-up grid with true (ellipsoidal) cell

@@ -15,6 +15,7 @@ import (
 
 	"github.com/paulmach/orb"
 
+	"areasweep/extent/gdalmsg"
 	"areasweep/extent/geodesy"
 )
 
@@ -790,7 +791,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 			if sel == nil {
 				sel = units[i].geom
 			} else if sel, err = sel.Union(units[i].geom); err != nil {
-				return fmt.Errorf("extent: %s: union of units failed: %w", spec.Ecoregions, err)
+				return fmt.Errorf("extent: %s: union of units failed (%s); check the unit geometries in a GIS", spec.Ecoregions, gdalmsg.Cause(err.Error()))
 			}
 		}
 	}
@@ -804,7 +805,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		}
 		hit, err := units[i].geom.Intersects(sel)
 		if err != nil {
-			return fmt.Errorf("extent: %s unit %q: %w", spec.Ecoregions, units[i].ID, err)
+			return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
 		}
 		if hit {
 			touching = append(touching, i)

@@ -10,6 +10,7 @@ import (
 
 	"github.com/airbusgeo/godal"
 
+	"areasweep/extent/gdalmsg"
 	"areasweep/extent/geodesy"
 )
 
@@ -90,7 +91,7 @@ func OpenGrid(path string) (*Grid, error) {
 	Register()
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read: %w", path, err)
+		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
 	defer ds.Close()
 	if len(ds.Bands()) == 0 {
@@ -98,7 +99,7 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	gt, err := ds.GeoTransform()
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s has no geotransform: %w", path, err)
+		return nil, fmt.Errorf("extent: %s has no geotransform (%s); it must be a georeferenced raster", path, gdalmsg.Cause(err.Error()))
 	}
 	sr := ds.SpatialRef()
 	if sr == nil {
@@ -107,6 +108,9 @@ func OpenGrid(path string) (*Grid, error) {
 	wkt, err := sr.WKT()
 	if err != nil || wkt == "" {
 		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+	}
+	if undefinedCRS(wkt) {
+		return nil, fmt.Errorf("%s: its CRS is undefined (%s): %w", path, crsName(wkt), ErrNoCRS)
 	}
 	st := ds.Structure()
 	g, err := NewGrid(st.SizeX, st.SizeY, gt, wkt)
@@ -120,11 +124,8 @@ func OpenGrid(path string) (*Grid, error) {
 // string GDAL's SetFromUserInput reads, such as "EPSG:4326").
 func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	Register()
-	if width <= 0 || height <= 0 {
-		return nil, fmt.Errorf("extent: grid size %dx%d is empty", width, height)
-	}
-	if gt[2] != 0 || gt[4] != 0 || gt[1] <= 0 || gt[5] >= 0 {
-		return nil, ErrRotated
+	if err := CheckGeoTransform(width, height, gt); err != nil {
+		return nil, err
 	}
 	sr, err := godal.NewSpatialRef(crs)
 	if err != nil {
@@ -147,6 +148,9 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	if g.Geographic {
 		if float64(width)*gt[1] > 360+1e-9 {
 			return nil, ErrWideGrid
+		}
+		if gt[0] < -540 || gt[0] > 540 {
+			return nil, fmt.Errorf("extent: raster's west edge is at longitude %g; a latitude-longitude grid must start within -540..540 degrees", gt[0])
 		}
 		if gt[3] > 90+1e-9 || gt[3]+float64(height)*gt[5] < -90-1e-9 {
 			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f)", gt[3], gt[3]+float64(height)*gt[5])
@@ -176,6 +180,47 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		return nil, err
 	}
 	return g, nil
+}
+
+// MaxGridSide is the largest number of columns or rows a grid may have,
+// and MaxGridCells the largest number of cells: far beyond any model
+// raster, but small enough that cell indices and bitsets fit in memory
+// arithmetic without overflow. Memory itself is checked by the caller.
+const (
+	MaxGridSide  = 1 << 24
+	MaxGridCells = 1 << 36
+)
+
+// CheckGeoTransform checks a grid's size and geotransform before anything
+// is derived from them: a positive size within MaxGridSide and
+// MaxGridCells, finite coefficients, north-up (no rotation, positive cell
+// width, negative cell height) and finite corners.
+func CheckGeoTransform(width, height int, gt [6]float64) error {
+	if width <= 0 || height <= 0 {
+		return fmt.Errorf("extent: grid size %dx%d is empty", width, height)
+	}
+	if width > MaxGridSide || height > MaxGridSide || int64(width)*int64(height) > MaxGridCells {
+		return fmt.Errorf("extent: grid size %dx%d is beyond the %d cells per side and %d cells areasweep handles; resample the raster coarser (gdalwarp -tr)", width, height, MaxGridSide, int64(MaxGridCells))
+	}
+	for i, v := range gt {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("extent: geotransform coefficient %d is %v; the raster's georeferencing is broken (check it with gdalinfo)", i, v)
+		}
+	}
+	if gt[2] != 0 || gt[4] != 0 || gt[1] <= 0 || gt[5] >= 0 {
+		return ErrRotated
+	}
+	east, south := gt[0]+float64(width)*gt[1], gt[3]+float64(height)*gt[5]
+	if math.IsInf(east, 0) || math.IsInf(south, 0) || east == gt[0] || south == gt[3] {
+		return fmt.Errorf("extent: geotransform %v gives no usable extent for %dx%d cells; the raster's georeferencing is broken (check it with gdalinfo)", gt, width, height)
+	}
+	// Cell sides must stay distinguishable in float64 at the grid's
+	// coordinates, or cell centres and edges collapse onto each other.
+	far := math.Max(math.Max(math.Abs(gt[0]), math.Abs(east)), math.Max(math.Abs(gt[3]), math.Abs(south)))
+	if gt[1] < far*1e-9 || -gt[5] < far*1e-9 {
+		return fmt.Errorf("extent: cells of %g x %g are too small for coordinates as large as %g (below float precision); the raster's georeferencing is broken (check it with gdalinfo)", gt[1], -gt[5], far)
+	}
+	return nil
 }
 
 // Close releases the grid's coordinate transformations.
@@ -297,6 +342,21 @@ func (g *Grid) FromLonLat(lons, lats, xs, ys []float64) {
 // wrapInto shifts longitude lon by whole turns so that it lies in
 // [west, west+360).
 func wrapInto(lon, west float64) float64 {
+	if math.IsNaN(lon) || math.IsInf(lon, 0) {
+		return math.NaN()
+	}
+	if math.Abs(lon-west) > 3600 {
+		// Far outside any grid: one exact remainder instead of thousands
+		// of turns (adding 360 to 1e300 would never move it).
+		r := math.Mod(lon-west, 360)
+		if r < 0 {
+			r += 360
+		}
+		if r >= 360 {
+			r = 0
+		}
+		return west + r
+	}
 	for lon < west {
 		lon += 360
 	}
@@ -426,7 +486,11 @@ func (g *Grid) computeFactors() error {
 			}
 			area, _ := geodesy.PolygonArea(lats, lons)
 			planar := (x1 - x0) * (y0 - y1)
-			g.blockFactor[br*g.factorW+bc] = math.Abs(area) / planar
+			fac := math.Abs(area) / planar
+			if !(fac > 0) || math.IsInf(fac, 0) {
+				return fmt.Errorf("extent: cells near column %d row %d lie outside the area where the raster CRS is defined (their true area is %g); check the raster's CRS and georeferencing with gdalinfo", c0, r0, math.Abs(area))
+			}
+			g.blockFactor[br*g.factorW+bc] = fac
 		}
 	}
 	g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)

@@ -4,12 +4,15 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"sort"
 	"strings"
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"areasweep/extent/gdalmsg"
 )
 
 // ErrNoOverlap is returned when a polygon layer covers no cell of the grid.
@@ -45,7 +48,7 @@ func ReadShape(path string, g *Grid) (Shape, []string, error) {
 		}
 		un, err := all.Union(u.geom)
 		if err != nil {
-			return Shape{}, warns, fmt.Errorf("extent: %s: union of features failed: %w", path, err)
+			return Shape{}, warns, fmt.Errorf("extent: %s: union of features failed (%s); check the geometries in a GIS", path, gdalmsg.Cause(err.Error()))
 		}
 		all = un
 	}
@@ -67,7 +70,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	var warns []string
 	ds, err := godal.Open(path, godal.VectorOnly())
 	if err != nil {
-		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read: %w", path, err)
+		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
 	defer ds.Close()
 	layers := ds.Layers()
@@ -84,15 +87,25 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	}
 	if w, err := lsr.WKT(); err != nil || w == "" {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+	} else if undefinedCRS(w) {
+		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
 	defer lsr.Close()
+	if err := checkFeatureTypes(path, layer); err != nil {
+		return nil, warns, err
+	}
+	if field != "" {
+		if err := checkNullIDs(ds, path, layer, field); err != nil {
+			return nil, warns, err
+		}
+	}
 	// Invalid features (self-intersections, bad rings) are repaired with
 	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
 	// buffer would drop from a bow-tie, on a copy of the layer in memory.
 	if bad := invalidFeatures(layer); len(bad) > 0 {
 		fixed, err := ds.VectorTranslate("", []string{"-makevalid"}, godal.Memory)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%v); fix them in a GIS", path, bad, err)
+			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, bad, gdalmsg.Cause(err.Error()))
 		}
 		defer fixed.Close()
 		layer = fixed.Layers()[0]
@@ -126,16 +139,26 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 			}
 			id = v.String()
+			if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
+				f.Close()
+				return nil, warns, fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
+			}
 		}
-		if geom == nil || geom.Empty() {
+		if noGeometry(geom) {
 			warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, fid))
 			f.Close()
 			continue
 		}
 		t := geom.Type()
 		if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
+			// Read the name before the feature (which owns geom) is closed.
+			name := geom.Name()
 			f.Close()
-			return nil, warns, fmt.Errorf("extent: %s feature %d is a %s, not a polygon", path, fid, geom.Name())
+			return nil, warns, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (repair turned it into a %s); remove or fix it in a GIS", path, fid, strings.ToLower(name))
+		}
+		if !(geom.Area() > 0) {
+			f.Close()
+			return nil, warns, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (its points lie on a line or repeat); remove or fix it in a GIS", path, fid)
 		}
 		// Own copy through WKB, so the feature can be closed.
 		b, err := geom.WKB()
@@ -145,7 +168,10 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		}
 		own, err := godal.NewGeometryFromWKB(b, lsr)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+			return nil, warns, fmt.Errorf("extent: %s feature %d: %s", path, fid, gdalmsg.Cause(err.Error()))
+		}
+		if msg := coordinateProblem(own, lsr.Geographic()); msg != "" {
+			return nil, warns, fmt.Errorf("extent: %s feature %d %s; check the coordinates and the layer's CRS", path, fid, msg)
 		}
 		if !own.Valid() {
 			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired; fix it in a GIS", path, fid)
@@ -153,7 +179,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		if prev, ok := byID[id]; ok {
 			un, err := prev.Union(own)
 			if err != nil {
-				return nil, warns, fmt.Errorf("extent: %s feature %d: union failed: %w", path, fid, err)
+				return nil, warns, fmt.Errorf("extent: %s feature %d: union with the features before it failed (%s); check the geometry in a GIS", path, fid, gdalmsg.Cause(err.Error()))
 			}
 			byID[id] = un
 		} else {
@@ -168,7 +194,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	for _, id := range order {
 		geom := byID[id]
 		if err := geom.Reproject(g.srs); err != nil {
-			return nil, warns, fmt.Errorf("extent: %s: cannot reproject to the raster CRS: %w", path, err)
+			return nil, warns, fmt.Errorf("extent: %s unit %q: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", path, id, gdalmsg.Cause(err.Error()))
 		}
 		s, err := shapeOf(geom, g)
 		if err != nil {
@@ -177,6 +203,140 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// noGeometry reports a feature without geometry: godal returns a Geometry
+// holding a NULL handle then, and asking GDAL whether that is empty makes
+// it print "Pointer 'hGeom' is NULL"; the handle is read by reflection
+// instead.
+func noGeometry(g *godal.Geometry) bool {
+	if g == nil {
+		return true
+	}
+	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && h.Kind() == reflect.Pointer && h.IsNil() {
+		return true
+	}
+	return g.Empty()
+}
+
+// coordinateProblem says what is wrong with the coordinates of g, or "":
+// not finite, or for a latitude-longitude layer a latitude beyond the
+// poles or a longitude beyond one and a half turns.
+func coordinateProblem(g *godal.Geometry, geographic bool) string {
+	b, err := g.Bounds()
+	if err != nil {
+		return "has coordinates that cannot be read"
+	}
+	for _, v := range b {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return "has a coordinate that is not a finite number"
+		}
+	}
+	if !geographic {
+		return ""
+	}
+	const eps = 1e-9
+	switch {
+	case b[1] < -90-eps:
+		return fmt.Sprintf("has a vertex at latitude %g, beyond the south pole", b[1])
+	case b[3] > 90+eps:
+		return fmt.Sprintf("has a vertex at latitude %g, beyond the north pole", b[3])
+	case b[0] < -540:
+		return fmt.Sprintf("has a vertex at longitude %g, beyond -540 degrees", b[0])
+	case b[2] > 540:
+		return fmt.Sprintf("has a vertex at longitude %g, beyond 540 degrees", b[2])
+	}
+	return ""
+}
+
+// undefinedCRS reports a CRS that only says it is unknown: the GeoPackage
+// "Undefined geographic SRS" (srs_id 0) and "Undefined Cartesian SRS"
+// (srs_id -1), and local engineering CRSs.
+func undefinedCRS(wkt string) bool {
+	w := strings.TrimSpace(wkt)
+	return strings.Contains(w, `"Undefined `) || strings.HasPrefix(w, "LOCAL_CS") || strings.HasPrefix(w, "ENGCRS")
+}
+
+// crsName is the name in a WKT CRS (the first quoted string).
+func crsName(wkt string) string {
+	i := strings.IndexByte(wkt, '"')
+	if i < 0 {
+		return "unnamed"
+	}
+	j := strings.IndexByte(wkt[i+1:], '"')
+	if j < 0 {
+		return "unnamed"
+	}
+	return wkt[i+1 : i+1+j]
+}
+
+// checkFeatureTypes refuses, before any repair, features that are not
+// areas: points, lines, collections holding them, and polygons with no
+// area (degenerate rings). The feature is named by its 1-based position.
+func checkFeatureTypes(path string, layer godal.Layer) error {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for n := 1; ; n++ {
+		f := layer.NextFeature()
+		if f == nil {
+			return nil
+		}
+		// geom belongs to f: everything is read before f.Close.
+		msg := ""
+		if g := f.Geometry(); !noGeometry(g) {
+			msg = polygonProblem(g)
+		}
+		f.Close()
+		if msg != "" {
+			return fmt.Errorf("extent: %s feature %d %s; areasweep needs polygon areas: remove or fix the feature in a GIS", path, n, msg)
+		}
+	}
+}
+
+// polygonProblem says what makes g unusable as an area, or "".
+func polygonProblem(g *godal.Geometry) string {
+	switch g.Type() {
+	case godal.GTPolygon, godal.GTMultiPolygon, godal.GTPolygon25D, godal.GTMultiPolygon25D:
+		// An invalid polygon (a bow-tie's halves cancel) is measured after
+		// repair, in readUnits.
+		if !(g.Area() > 0) && g.Valid() {
+			return "is a degenerate polygon with no area (its points lie on a line or repeat)"
+		}
+		return ""
+	case godal.GTGeometryCollection, godal.GTGeometryCollection25D:
+		for i := 0; i < g.GeometryCount(); i++ {
+			sub, err := g.SubGeometry(i)
+			if err != nil {
+				return "is a geometry collection that cannot be read"
+			}
+			if p := polygonProblem(sub); p != "" {
+				return "is a geometry collection whose part " + fmt.Sprint(i+1) + " " + p
+			}
+		}
+		return ""
+	}
+	return "is a " + strings.ToLower(g.Name()) + ", not a polygon"
+}
+
+// checkNullIDs refuses a unit layer with features whose id field is NULL:
+// they would silently merge into one unit.
+func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field string) error {
+	q := fmt.Sprintf(`SELECT COUNT(*) AS n FROM "%s" WHERE "%s" IS NULL`, strings.ReplaceAll(layer.Name(), `"`, `""`), strings.ReplaceAll(field, `"`, `""`))
+	rs, err := ds.ExecuteSQL(q, godal.OGRSQLDialect())
+	if err != nil || rs == nil {
+		return nil // an unknown field is reported by the reader with the list of fields
+	}
+	defer rs.Close()
+	f := rs.NextFeature()
+	if f == nil {
+		return nil
+	}
+	defer f.Close()
+	v, ok := f.Fields()["n"]
+	if !ok || v.Int() == 0 {
+		return nil
+	}
+	return fmt.Errorf("extent: %s has %d feature(s) with no value (NULL) in field %q; they would merge into one unit: give every unit an id, or delete those features", path, v.Int(), field)
 }
 
 // invalidFeatures returns the 1-based numbers of the layer's features whose
@@ -189,7 +349,7 @@ func invalidFeatures(layer godal.Layer) []int {
 		if f == nil {
 			break
 		}
-		if g := f.Geometry(); g != nil && !g.Empty() && !g.Valid() {
+		if g := f.Geometry(); !noGeometry(g) && !g.Valid() {
 			bad = append(bad, n)
 		}
 		f.Close()
@@ -263,7 +423,7 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 				}
 				rr[k] = orb.Point{lons[k], lats[k]}
 			}
-			if err := checkRingLon(rr); err != nil {
+			if err := checkRingLon(rr, g.Geographic); err != nil {
 				return Shape{}, err
 			}
 			ll[i][j] = rr
@@ -275,10 +435,18 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 // checkRingLon refuses rings with an edge jumping more than 180 degrees of
 // longitude: such a ring crosses the antimeridian in a way the grid cannot
 // represent, and filling it would cover the wrong side of the Earth.
-func checkRingLon(r orb.Ring) error {
+//
+// On latitude-longitude grids the ring has been shifted by whole turns
+// into the grid's range; the message shows the longitudes in -180..180,
+// as the user wrote them.
+func checkRingLon(r orb.Ring, shifted bool) error {
 	for i := 1; i < len(r); i++ {
 		if math.Abs(r[i][0]-r[i-1][0]) > 180 {
-			return fmt.Errorf("a polygon edge crosses the antimeridian (from lon %.4f to %.4f); split the polygon at 180 degrees", r[i-1][0], r[i][0])
+			a, b := r[i-1][0], r[i][0]
+			if shifted {
+				a, b = wrapInto(a, -180), wrapInto(b, -180)
+			}
+			return fmt.Errorf("a polygon edge crosses the antimeridian (from lon %.4f to %.4f, lat %.4f to %.4f); split the polygon at 180 degrees", a, b, r[i-1][1], r[i][1])
 		}
 	}
 	return nil

@@ -153,3 +153,44 @@ func BenchmarkScore(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkCompare times one paired comparison of two extents (B = 200
+// full-size resamples, two E values, two thresholds, the Boyce index) by
+// the number of test presences.
+func BenchmarkCompare(b *testing.B) {
+	for _, n := range []int{100, 1000} {
+		b.Run(fmt.Sprintf("presences=%d/resamples=200", n), func(b *testing.B) {
+			l, cells := benchLayout(b, n)
+			outer, inner := l.NewAccumulator(), l.NewAccumulator()
+			for i, v := range cells {
+				outer.Add(v, 1000)
+				if i%2 == 0 {
+					inner.Add(v, 1000)
+				}
+			}
+			test := l.Values()
+			ids := make([]int, len(test))
+			for i := range ids {
+				ids[i] = i
+			}
+			s := Settings{E: []float64{0.05, 0.1}}
+			ths := []float64{test[len(test)/10], test[len(test)/2]}
+			ea, err := NewEvaluator(outer, test, ids, ths, s)
+			if err != nil {
+				b.Fatal(err)
+			}
+			eb, err := NewEvaluator(inner, test, ids, ths, s)
+			if err != nil {
+				b.Fatal(err)
+			}
+			d := Draws{N: len(ids), B: 200, Seed: 1}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				if _, err := Compare(ea, eb, d); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

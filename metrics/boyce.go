@@ -52,13 +52,17 @@ type Boyce struct {
 // bin's edge.
 const minBoyceShare = 1e-12
 
-// boyce computes the continuous Boyce index; sortedTest is ascending.
-func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce {
+// boyceWindow is one used Boyce window: its ends (inclusive), midpoint and
+// share of the extent's area.
+type boyceWindow struct{ lo, hi, mid, share float64 }
+
+// boyceWindows returns the windows with background area (share above
+// minBoyceShare), in order, for an extent's accumulator.
+func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 	l := a.layout
 	mn, mx := a.min, a.max
 	span := mx - mn
 	w := width * span
-	b := Boyce{Windows: steps}
 
 	// Effective interval of every histogram bin.
 	H := l.hBins
@@ -79,7 +83,6 @@ func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce
 	}
 	hw := l.histWidth()
 	total := float64(a.area)
-	n := float64(len(sortedTest))
 
 	areaIn := func(lo, hi float64) float64 {
 		var s float64
@@ -115,6 +118,7 @@ func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce
 	if steps > 1 {
 		step = (span - w) / float64(steps-1)
 	}
+	var out []boyceWindow
 	for i := 0; i < steps; i++ {
 		lo := mn + float64(i)*step
 		hi := lo + w
@@ -125,22 +129,40 @@ func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce
 		if !(e > minBoyceShare) {
 			continue
 		}
-		c := sort.SearchFloat64s(sortedTest, math.Nextafter(hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, lo)
-		f := (float64(c) / n) / e
-		b.Mid = append(b.Mid, lo+w/2)
-		b.Ratio = append(b.Ratio, f)
+		out = append(out, boyceWindow{lo: lo, hi: hi, mid: lo + w/2, share: e})
+	}
+	return out
+}
+
+// boyce computes the continuous Boyce index; sortedTest is ascending.
+func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce {
+	b := Boyce{Windows: steps}
+	n := float64(len(sortedTest))
+	for _, w := range boyceWindows(a, width, steps) {
+		c := sort.SearchFloat64s(sortedTest, math.Nextafter(w.hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, w.lo)
+		b.Mid = append(b.Mid, w.mid)
+		b.Ratio = append(b.Ratio, (float64(c)/n)/w.share)
 	}
 	b.Used = len(b.Mid)
-	switch {
-	case b.Used < 3:
-		b.Reason = "fewer than 3 windows with background area"
-	default:
-		rho, ok := Spearman(b.Ratio, b.Mid)
-		if !ok {
-			b.Reason = "no variation in the predicted/expected ratio or the window midpoints"
-			break
-		}
-		b.Index, b.Defined = rho, true
-	}
+	b.Index, b.Defined, b.Reason = boyceIndex(b.Ratio, b.Mid)
 	return b
+}
+
+// Reasons given in Boyce.Reason.
+const (
+	ReasonBoyceWindows = "fewer than 3 windows with background area"
+	ReasonBoyceFlat    = "no variation in the predicted/expected ratio or the window midpoints"
+)
+
+// boyceIndex is the Spearman correlation of the P/E ratios with the window
+// midpoints, or the reason it is undefined.
+func boyceIndex(ratio, mid []float64) (float64, bool, string) {
+	if len(ratio) < 3 {
+		return 0, false, ReasonBoyceWindows
+	}
+	rho, ok := Spearman(ratio, mid)
+	if !ok {
+		return 0, false, ReasonBoyceFlat
+	}
+	return rho, true, ""
 }

@@ -1,5 +1,6 @@
-// Package metrics scores one suitability model on one calibration extent,
-// exactly, from a stream of background cells and sets of presence values.
+// Package metrics scores one suitability model on one evaluation extent,
+// exactly, from a stream of background cells and sets of presence values,
+// and compares scores between extents or models on shared test presences.
 // It is pure Go (no raster library): the raster pass feeds it numbers.
 //
 // # Flow
@@ -39,12 +40,26 @@
 // not depend on the number of cells; the partial ROC bootstrap works on
 // counts of resampled presences.
 //
+// # Uncertainty and paired comparisons
+//
+// The background of an extent is its complete population of cells, so the
+// only sampling variation is that of the test presences. Scores.Placements
+// holds each test presence's placement V_i (its AUC term), Scores.AUCSE the
+// standard error of their mean, and Scores.AUCUnweightedVarDeLong DeLong's
+// full variance for readers who treat cells as a sample. For comparisons,
+// NewEvaluator keeps one model x extent's test presences with their global
+// indices, and Compare gives paired differences on the presences two
+// evaluators share: from the placements for the AUCs (PairedPlacements),
+// and from one set of full-size resamples (Draws, the same index sets for
+// every model and extent) for partial ROC, omission and Boyce.
+//
 // # Undefined quantities
 //
 // No returned number is NaN or infinite. When the whole record cannot be
 // scored (no background, no test presences, constant suitability)
 // Scores.Scored is false and Scores.NotScored says why. A partial ROC curve
-// that cannot be formed has Formed false and Ratio 0; bootstrap resamples
+// that cannot be formed (or whose 1-E crossing falls among tied test
+// presences) has Formed false, Ratio 0 and a Reason; bootstrap resamples
 // that cannot be formed are counted in NotFormed. An undefined Boyce index
 // has Defined false, Index 0 and a Reason. AUCTrain is 0 and the
 // training-presence thresholds are absent when there are no training
@@ -60,4 +75,8 @@
 //     Ecological Modelling 162:211-232. See Threshold.
 //   - Continuous Boyce index: Hirzel, Le Lay, Helfer, Randin & Guisan (2006)
 //     Ecological Modelling 199:142-152. See Boyce.
+//   - Placements and DeLong's variance: DeLong, DeLong & Clarke-Pearson
+//     (1988) Biometrics 44:837-845. See PlacementSE, PairedPlacements.
+//   - Percentile intervals of paired resamples: Efron & Tibshirani (1993)
+//     An Introduction to the Bootstrap, ch. 13. See Compare.
 package metrics

@@ -36,17 +36,28 @@ const pcgStream = 0x9E3779B97F4A7C15
 // with sensitivity focus, uncorrected" of the ROC literature, with
 // specificity = 1-x).
 //
+// When the crossing falls strictly inside the segment of a value shared by
+// two or more test presences (a tie, typical of a floor value), no
+// threshold separates those presences and x_E is only an interpolation
+// along the tie: the ratio would be (2 - E)/(1 + x_E)-like arithmetic, not a
+// property of the ranking. The ratio is then undefined (Formed false,
+// Reason ReasonPartialTie) and the discrete-threshold reading is given
+// instead: DiscreteXE is the area at or above the tied value (the
+// threshold that keeps every tied presence, so y >= 1-E there) and
+// DiscreteRatio the ratio computed from that x_E.
+//
 // The count (1-E)n is rounded to the nearest integer when it is within
 // 1e-9 of one, so that for example E = 0.05 and n = 20 reaches the 19th
 // presence exactly despite binary rounding of 0.95.
 //
-// The bootstrap repeats this on B resamples, each drawing
+// The published bootstrap (Peterson et al. 2008) repeats this on B
+// resamples, each drawing
 // max(1, round(f*n)) test presences with replacement (f = Settings.Fraction;
 // math/rand/v2 PCG seeded with (Seed, Seed xor 0x9E3779B97F4A7C15); draws
 // are positions in the ascending-sorted test values, so results depend only
 // on the multiset of test values and the seed; the same resamples serve all
 // E). A resample whose curve cannot be formed (null area 0 because x_E = 1)
-// is counted in NotFormed and left out of RatioMean, RatioSD (sample SD,
+// or whose crossing lies on a tie is counted in NotFormed and left out of RatioMean, RatioSD (sample SD,
 // denominator k-1 over the k formed resamples), CILow and CIHigh (2.5th and
 // 97.5th percentiles, linear interpolation between order statistics: the
 // p-quantile of sorted r_0..r_{k-1} is r_h interpolated at h = (k-1)p) and
@@ -63,13 +74,24 @@ type PartialROC struct {
 	// Ratio is the AUC ratio on the full test set (0 when !Formed).
 	Ratio float64
 	// RatioMean, RatioSD, CILow, CIHigh and PValue summarise the formed
-	// bootstrap resamples (see the type comment).
+	// resamples of the published half-size bootstrap (see the type
+	// comment). PValue cannot resolve values below 1/(formed resamples).
 	RatioMean, RatioSD, CILow, CIHigh, PValue float64
 	// Iterations is the number of resamples drawn, NotFormed how many of
 	// them could not form a curve.
 	Iterations, NotFormed int
-	// Formed reports whether the full-set curve could be formed.
+	// Formed reports whether the full-set ratio is defined; Reason says why
+	// not (ReasonPartialNull or ReasonPartialTie).
 	Formed bool
+	Reason string
+	// TiedAtCrossing is the number of test presences tied at TieValue, the
+	// value on whose segment the crossing falls (ReasonPartialTie only).
+	TiedAtCrossing int
+	TieValue       float64
+	// DiscreteFormed, DiscreteXE and DiscreteRatio are the
+	// discrete-threshold reading of a tie crossing (see the type comment).
+	DiscreteFormed            bool
+	DiscreteXE, DiscreteRatio float64
 	// XE is the full-set x_E: the share of area predicted present when the
 	// curve first reaches 1-E.
 	XE float64
@@ -87,15 +109,40 @@ func snapCount(x float64) float64 {
 	return x
 }
 
+// crossing says how the curve met y = 1-E.
+type crossing int
+
+const (
+	crossFormed crossing = iota // a proper crossing with x_E < 1
+	crossNull                   // x_E = 1: no area is left to the right
+	crossTie                    // the crossing lies among test points tied at one value
+)
+
+// partialResult is one partial ROC evaluation of a curve.
+type partialResult struct {
+	model, null, xE float64
+	how             crossing
+	// tied is the number of test presences sharing the value on whose
+	// segment the crossing lies (crossTie only); tieValue is that value's
+	// layout index.
+	tied     int
+	tieGroup int
+}
+
 // partialArea computes the partial ROC areas of the curve formed by the
 // presences with counts[g] presences at group g (descending value order,
-// r presences in all).
-func (p *presences) partialArea(counts []int, r int, e float64) (model, null, xE float64, ok bool) {
+// r presences in all). When the crossing falls strictly inside the
+// segment of a value shared by two or more distinct test presences of the
+// full set (p.count, not counts: a resample that draws one presence twice
+// makes no tie), how is crossTie and the areas are left at 0.
+func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
 	rf := float64(r)
 	tau := snapCount((1 - e) * rf)
 	ya := 0
 	crossed := false
 	prevX, prevY := 0.0, 0
+	var res partialResult
+	var model float64
 	for g, c := range counts {
 		if c == 0 {
 			continue
@@ -109,17 +156,52 @@ func (p *presences) partialArea(counts []int, r int, e float64) (model, null, xE
 		case float64(yb) >= tau:
 			s := (tau - float64(ya)) / float64(c)
 			if s >= 1 {
-				xE = xb
+				res.xE = xb
 			} else {
-				xE = xa + s*(xb-xa)
+				res.xE = xa + s*(xb-xa)
+				if p.count[g] >= 2 && s > 0 {
+					res.how, res.tied, res.tieGroup = crossTie, c, g
+				}
 			}
-			model += (xb - xE) * (tau + float64(yb)) / 2
+			model += (xb - res.xE) * (tau + float64(yb)) / 2
 			crossed = true
 		}
 		prevX, prevY = xb, yb
 		ya = yb
 	}
 	model += (1 - prevX) * rf // last B -> (1,1)
+	res.model = model / rf
+	res.null = (1 - res.xE*res.xE) / 2
+	if !(res.null > 0) {
+		res.model, res.null, res.how = 0, 0, crossNull
+	}
+	return res
+}
+
+// discreteArea is the partial ROC read at thresholds only: x_E is the
+// area at or above the tied value g (the threshold that keeps every tied
+// presence), and the model area runs from there. ok is false when that
+// threshold keeps the whole area.
+func (p *presences) discreteArea(counts []int, r int, g int) (model, null, xE float64, ok bool) {
+	rf := float64(r)
+	xE = p.xge[g]
+	ya := 0
+	for h := 0; h <= g; h++ {
+		ya += counts[h]
+	}
+	prevX, prevY := xE, ya
+	for h := g + 1; h < len(counts); h++ {
+		c := counts[h]
+		if c == 0 {
+			continue
+		}
+		yb := prevY + c
+		xa, xb := p.xgt[h], p.xge[h]
+		model += (xa - prevX) * float64(prevY)
+		model += (xb - xa) * float64(prevY+yb) / 2
+		prevX, prevY = xb, yb
+	}
+	model += (1 - prevX) * rf
 	model /= rf
 	null = (1 - xE*xE) / 2
 	if !(null > 0) {
@@ -128,15 +210,36 @@ func (p *presences) partialArea(counts []int, r int, e float64) (model, null, xE
 	return model, null, xE, true
 }
 
-// partialROC computes one PartialROC per E and the bootstrap SD of the
-// weighted AUC.
-func partialROC(p *presences, s Settings) ([]PartialROC, float64) {
+// Reasons given in PartialROC.Reason.
+const (
+	ReasonPartialNull = "the curve reaches 1 - E only at x = 1, so no area is left to compare"
+	ReasonPartialTie  = "the 1 - E crossing falls among test points tied at one value; x_E there is only an interpolation"
+)
+
+// partialROC computes one PartialROC per E with the published half-size
+// bootstrap.
+func partialROC(p *presences, s Settings) []PartialROC {
 	out := make([]PartialROC, len(s.E))
 	for i, e := range s.E {
-		model, null, xE, ok := p.partialArea(p.count, p.n, e)
-		out[i] = PartialROC{E: e, Formed: ok, XE: xE, ModelArea: model, NullArea: null, Iterations: s.Iterations}
-		if ok {
-			out[i].Ratio = model / null
+		pr := p.partialArea(p.count, p.n, e)
+		out[i] = PartialROC{E: e, XE: pr.xE, Iterations: s.Iterations}
+		switch pr.how {
+		case crossFormed:
+			out[i].Formed = true
+			out[i].ModelArea, out[i].NullArea = pr.model, pr.null
+			out[i].Ratio = pr.model / pr.null
+		case crossNull:
+			out[i].Reason = ReasonPartialNull
+		case crossTie:
+			out[i].Reason = ReasonPartialTie
+			out[i].TiedAtCrossing = pr.tied
+			out[i].TieValue = p.c.values[p.j[pr.tieGroup]]
+			if m, nl, xe, ok := p.discreteArea(p.count, p.n, pr.tieGroup); ok {
+				out[i].DiscreteFormed = true
+				out[i].DiscreteXE, out[i].DiscreteRatio = xe, m/nl
+			} else {
+				out[i].DiscreteXE = xe
+			}
 		}
 	}
 
@@ -148,24 +251,18 @@ func partialROC(p *presences, s Settings) ([]PartialROC, float64) {
 	for i := range ratios {
 		ratios[i] = make([]float64, 0, B)
 	}
-	aucs := make([]float64, B)
 	for it := 0; it < B; it++ {
 		clear(counts)
 		for k := 0; k < r; k++ {
 			counts[p.member[rng.IntN(p.n)]]++
 		}
-		var auc float64
-		for g, c := range counts {
-			auc += float64(c) * p.below[g]
-		}
-		aucs[it] = auc / float64(r)
 		for i, e := range s.E {
-			model, null, _, ok := p.partialArea(counts, r, e)
-			if !ok {
+			pr := p.partialArea(counts, r, e)
+			if pr.how != crossFormed {
 				out[i].NotFormed++
 				continue
 			}
-			ratios[i] = append(ratios[i], model/null)
+			ratios[i] = append(ratios[i], pr.model/pr.null)
 		}
 	}
 	for i := range out {
@@ -185,8 +282,7 @@ func partialROC(p *presences, s Settings) ([]PartialROC, float64) {
 		out[i].CILow = quantileSorted(rs, 0.025)
 		out[i].CIHigh = quantileSorted(rs, 0.975)
 	}
-	_, sd := meanSD(aucs)
-	return out, sd
+	return out
 }
 
 // curve returns the exact vertices of the full-set area ROC curve:

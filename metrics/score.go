@@ -53,10 +53,20 @@ type Scores struct {
 	// under a receiver operating characteristic (ROC) curve. Radiology
 	// 143:29-36.
 	AUC, AUCUnweighted, AUCTrain float64
-	// AUCBootSD is the sample standard deviation (denominator B-1; 0 when
-	// B == 1) of the weighted test AUC over the partial ROC bootstrap
-	// resamples.
-	AUCBootSD float64
+	// Placements holds, for each test presence in the order given to
+	// Score, its placement V_i: the share of the extent's area scoring
+	// below v_i plus half the share scoring exactly v_i (see Placements).
+	// AUC is their mean. PlacementsUnweighted is the same with every cell
+	// counted once (its mean is AUCUnweighted).
+	Placements, PlacementsUnweighted []float64
+	// AUCSE is the standard error of AUC from the test presences alone,
+	// the background being the complete population of the extent's cells
+	// (0 when TestN < 2; see PlacementSE).
+	AUCSE float64
+	// AUCUnweightedVarDeLong is DeLong's variance of AUCUnweighted with
+	// the cells treated as a sample, each counted once (0 when TestN < 2 or
+	// Cells < 2; see DeLongVariance).
+	AUCUnweightedVarDeLong float64
 
 	// PartialROC holds one result per Settings.E, in that order.
 	PartialROC []PartialROC
@@ -141,7 +151,12 @@ func Score(a *Accumulator, train, test []float64, s Settings) (Scores, error) {
 		sc.AUCTrain = cum.auc(newPresences(cum, trainIdx), false)
 	}
 
-	sc.PartialROC, sc.AUCBootSD = partialROC(tp, s)
+	sc.Placements = cum.placements(testIdx, false)
+	sc.PlacementsUnweighted = cum.placements(testIdx, true)
+	sc.AUCSE = PlacementSE(sc.Placements, sc.AUC)
+	sc.AUCUnweightedVarDeLong = cum.delongVariance(tp, sc.PlacementsUnweighted, sc.AUCUnweighted)
+
+	sc.PartialROC = partialROC(tp, s)
 
 	thTrain, thIdx := train, trainIdx
 	if s.ThresholdTrain != nil {
@@ -270,5 +285,7 @@ func (c *cumulative) auc(p *presences, cells bool) float64 {
 		hi += h + carry
 	}
 	num := float64(hi)*0x1p64 + float64(lo)
-	return num / (2 * float64(p.n) * float64(total))
+	// num <= 2 n W exactly; the conversions and the division may round
+	// past 1 by an ulp, which is not a value an AUC can take.
+	return math.Min(1, num/(2*float64(p.n)*float64(total)))
 }

@@ -43,6 +43,7 @@ figure { margin: 1.2rem 0 2rem; }
 figure h3 { margin-bottom: 0.3rem; }
 svg.figure { width: 100%; max-width: 1000px; height: auto; display: block; }
 figcaption { font-size: 0.9rem; color: var(--muted); margin-top: 0.3rem; }
+figcaption .note { color: var(--ink); }
 .tablewrap { overflow-x: auto; margin: 0.5rem 0 1rem; }
 table { border-collapse: collapse; font-size: 0.82rem; }
 caption { text-align: left; font-weight: bold; padding: 0.2rem 0; }
@@ -222,12 +223,12 @@ const reportJS = `
         if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
         sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) model " + m +
-          " has AUC " + fx(c.auc, 3) + (c.proc_ok ? " and partial ROC ratio " + fx(c.proc, 3) : "") + ". Black: this extent; grey: the same model on the other extents" +
+          " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model on the other extents" +
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
         row("AUC", fx(c.auc, 3) + " (bootstrap SD " + fx(c.auc_sd, 3) + ")");
-        if (c.proc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.proc, 3) + " (" + fx(c.proc_low, 3) + "–" + fx(c.proc_high, 3) + ")"); }
+        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (resamples 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
           row("area predicted present at that threshold", fx(c.area_fraction, 3));

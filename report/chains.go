@@ -141,6 +141,19 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 	}
 	cs.EndAUC = prev
 	cs.Change = cs.EndAUC - cs.StartAUC
+	var auc []float64
+	for k, id := range cs.Members {
+		v := 0.0
+		if sc := a.score(model, id); sc != nil {
+			v = sc.AUC
+		} else if k == 0 {
+			v = first.AUCInner
+		} else {
+			v = rings[k-1].AUCOuter
+		}
+		auc = append(auc, v)
+	}
+	cs.Slope = slopeOf(cs.MemberAreasKm2, auc)
 	if math.Abs(cs.Change) > 1e-9 {
 		cs.SharesDefined = true
 		best := 0.0
@@ -184,14 +197,30 @@ func chainSentence(cs *ChainSummary) string {
 	}
 	s := fmt.Sprintf("%s; %s of the %s comes from the ring %s minus %s (%s km²)",
 		head, pct(st.Share), word, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
-	switch {
-	case !st.AUCRingDefined:
-		return s + "." + tail
-	case st.AUCRing > st.AUCInner:
-		return s + fmt.Sprintf(", whose AUC is %s: credit for rejecting easy, far-away background rather than for ranking the places near the records.", f3(st.AUCRing)) + tail
-	default:
-		return s + fmt.Sprintf(", whose AUC is %s: background there looks like the presences to the model, so adding it lowers the score.", f3(st.AUCRing)) + tail
+	if cs.Slope.Defined {
+		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signed3(cs.Slope.PerDoubling), cs.Slope.N)
 	}
+	if !st.AUCRingDefined {
+		return s + "." + tail
+	}
+	return s + ", " + ringClause(st) + tail
+}
+
+// ringClause says what a ring's AUC means, following its value: whether
+// the model ranks the test points above the ring's cells more or less
+// often than above the inner extent's cells, and whether the ring is
+// easier or harder than chance.
+func ringClause(st ChainStep) string {
+	s := fmt.Sprintf("whose AUC is %s against %s inside %s: ", f3(st.AUCRing), f3(st.AUCInner), st.Inner)
+	switch {
+	case st.AUCRing < 0.5:
+		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
+	case st.AUCRing > st.AUCInner:
+		return s + "the test points outrank the ring's cells more often than the inner cells, so adding the ring raises the score although the ranking near the records is unchanged."
+	case st.AUCRing < st.AUCInner:
+		return s + "the ring's cells look more like the presences to the model than the inner cells do, so adding it lowers the score."
+	}
+	return s + "the ring leaves the score unchanged."
 }
 
 // fmtArea formats an area in km² with three significant digits and

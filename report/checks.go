@@ -29,7 +29,10 @@ func (a *analysis) truncation() []TruncationCheck {
 			if tj.Jump > t.MaxJump {
 				t.MaxJump = tj.Jump
 			}
-			if tj.Jump > TailJumpFlag {
+			// Only a tie that starts below y = 1 (test points share the
+			// lowest value with many cells) flags; a flat run at y = 1 is
+			// background below every test point.
+			if tj.Jump > TailJumpFlag && tj.YFrom < 1 {
 				t.Tails = append(t.Tails, tj)
 			}
 		}
@@ -71,39 +74,38 @@ func lastSegment(c Curve) (TailJump, bool) {
 
 func (a *analysis) truncationSentence(t *TruncationCheck) string {
 	if !t.Flag {
-		return fmt.Sprintf("Model %s shows no sign of truncated predictions (floor covers %s of the valid area; longest final ROC segment %s).",
-			t.Model, pct(t.FloorShare), f3(t.MaxJump))
+		return fmt.Sprintf("Model %s shows no sign of truncated predictions: its minimum value covers %s of the valid area, and no ROC curve ends in a tie of test points with more than %s of the area axis.",
+			t.Model, pctFine(t.FloorShare), fmtG(TailJumpFlag))
 	}
 	s := fmt.Sprintf("Model %s looks truncated:", t.Model)
 	if t.FloorFlag {
-		s += fmt.Sprintf(" its minimum value covers %s of the valid area", pct(t.FloorShare))
+		s += fmt.Sprintf(" its minimum value covers %s of the valid area", pctFine(t.FloorShare))
 		if len(t.Tails) > 0 {
 			s += " and"
 		}
 	}
 	if len(t.Tails) > 0 {
-		s += fmt.Sprintf(" on %d extent(s) its ROC curve ends in a straight segment spanning up to %s of the area axis", len(t.Tails), f3(t.MaxJump))
+		s += fmt.Sprintf(" on %d extent(s) test points share its lowest value with up to %s of the area axis", len(t.Tails), f3(t.MaxJump))
+		s += ". Full AUC gives those test points half credit against the whole tied area"
 	}
 	e := "E"
 	if len(a.r.Settings.E) > 0 {
 		e = "E = " + fmtG(a.r.Settings.E[0])
 	}
-	tied := 0
-	for _, tj := range t.Tails {
-		if tj.YFrom < 1 {
-			tied++
-		}
-	}
-	switch {
-	case tied > 0:
-		s += fmt.Sprintf(". On %d of those extents test points sit on the floor: full AUC gives them half credit against the whole tied area and so penalises the model where it simply did not predict", tied)
-	case len(t.Tails) > 0:
-		s += ". No test point sits on the floor, so full AUC is not lowered by it, but that part of the curve is a straight line, not a ranking"
-	default:
-		s += ". Where test points sit on the floor, full AUC gives them half credit against the whole tied area and so penalises the model where it simply did not predict"
-	}
-	s += fmt.Sprintf("; read the partial ROC (%s) beside it, which was proposed partly for predictions that do not span the whole area axis (Peterson et al. 2008).", e)
+	s += fmt.Sprintf("; the partial ROC (%s) was proposed partly for predictions that do not span the whole area axis (Peterson et al. 2008), but where the 1 − E crossing falls among the tied test points it is undefined and only its reading at thresholds is given.", e)
 	return s
+}
+
+// pctFine formats a share as a percentage with enough digits to tell a
+// small share from zero (0.003%, 0.41%, 12%).
+func pctFine(v float64) string {
+	switch {
+	case v == 0:
+		return "0%"
+	case v < 0.01:
+		return trimFloat(100*v, 1) + "%"
+	}
+	return pct(v)
 }
 
 // independence summarises the test-to-training distances.

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"html"
 	"image/png"
 	"io"
@@ -85,8 +86,74 @@ func attr(dom, tagRe, name string) (string, bool) {
 var browserOwnHosts = []string{"update.googleapis.com", "accounts.google.com", "clients2.google.com",
 	"clientservices.googleapis.com", "redirector.gvt1.com", "edgedl.me.gvt1.com", "optimizationguide-pa.googleapis.com"}
 
-// TestReportInChromium opens report.html from disk in headless Chromium and
-// checks:
+// layoutCheckJS is appended to a copy of report.html by the browser test.
+// After the page's own script has run it measures the layout and writes a
+// JSON summary into <html data-layout>:
+//   - every <text> of every figure SVG, by getBBox mapped into the SVG's
+//     view box (through getScreenCTM), must lie inside the view box;
+//   - the page must not scroll sideways, every table wrapper and figure
+//     must end inside the window, and a table wider than its wrapper must
+//     sit in a wrapper that scrolls (overflow-x auto or scroll).
+const layoutCheckJS = `
+(function () {
+  var out = { figures: 0, texts: 0, outside: [], overflow: [], tables: 0, scrolling: 0 };
+  try {
+    var cw = document.documentElement.clientWidth;
+    Array.prototype.forEach.call(document.querySelectorAll("svg.figure"), function (svg) {
+      out.figures++;
+      var vb = svg.viewBox.baseVal;
+      var inv = svg.getScreenCTM().inverse();
+      Array.prototype.forEach.call(svg.querySelectorAll("text"), function (t) {
+        out.texts++;
+        var b = t.getBBox();
+        var m = inv.multiply(t.getScreenCTM());
+        var xs = [], ys = [];
+        [[b.x, b.y], [b.x + b.width, b.y], [b.x, b.y + b.height], [b.x + b.width, b.y + b.height]].forEach(function (p) {
+          var q = new DOMPoint(p[0], p[1]).matrixTransform(m);
+          xs.push(q.x); ys.push(q.y);
+        });
+        var x0 = Math.min.apply(null, xs), x1 = Math.max.apply(null, xs), y0 = Math.min.apply(null, ys), y1 = Math.max.apply(null, ys);
+        if (x0 < vb.x - 0.5 || y0 < vb.y - 0.5 || x1 > vb.x + vb.width + 0.5 || y1 > vb.y + vb.height + 0.5) {
+          out.outside.push(svg.id + ": '" + t.textContent + "' spans x " + x0.toFixed(1) + ".." + x1.toFixed(1) + ", y " + y0.toFixed(1) + ".." + y1.toFixed(1) + " in a " + vb.width.toFixed(1) + " x " + vb.height.toFixed(1) + " view box");
+        }
+      });
+      var r = svg.getBoundingClientRect();
+      if (r.right > cw + 1) { out.overflow.push("figure " + svg.id + " ends at " + r.right + " px, window " + cw); }
+    });
+    if (document.documentElement.scrollWidth > cw + 1) {
+      out.overflow.push("the page scrolls sideways: " + document.documentElement.scrollWidth + " > " + cw + " px");
+    }
+    Array.prototype.forEach.call(document.querySelectorAll(".tablewrap"), function (w) {
+      out.tables++;
+      var id = w.querySelector("table") ? w.querySelector("table").id : "?";
+      var r = w.getBoundingClientRect();
+      if (r.right > cw + 1) { out.overflow.push("table " + id + " ends at " + r.right + " px, window " + cw); }
+      if (w.scrollWidth > w.clientWidth + 1) {
+        out.scrolling++;
+        var ox = getComputedStyle(w).overflowX;
+        if (ox !== "auto" && ox !== "scroll") { out.overflow.push("table " + id + " is wider than its wrapper, which does not scroll (" + ox + ")"); }
+      }
+    });
+  } catch (e) {
+    out.overflow.push("layout check failed: " + e);
+  }
+  document.documentElement.setAttribute("data-layout", JSON.stringify(out));
+})();
+`
+
+// layoutResult mirrors the JSON written by layoutCheckJS.
+type layoutResult struct {
+	Figures   int      `json:"figures"`
+	Texts     int      `json:"texts"`
+	Outside   []string `json:"outside"`
+	Overflow  []string `json:"overflow"`
+	Tables    int      `json:"tables"`
+	Scrolling int      `json:"scrolling"`
+}
+
+// TestReportInChromium opens a copy of report.html from disk in headless
+// Chromium at 1400 and 800 px wide. The copy only adds layoutCheckJS at the
+// end of <body>. At each width it checks:
 //   - no script error, console.error, unhandled rejection or policy
 //     violation: the page's own capture script records them into
 //     <html data-errors>, read back from --dump-dom; the Chromium log
@@ -98,12 +165,18 @@ var browserOwnHosts = []string{"update.googleapis.com", "accounts.google.com", "
 //     chrome: URLs and the browser's own background hosts (which the
 //     resolver rule makes unreachable); TestHTMLSelfContained scans the
 //     HTML for external src/href/url();
+//   - the layout (layoutCheckJS): every SVG text inside its figure's view
+//     box, no sideways page scroll, tables scroll inside their wrapper;
 //   - every figure's <svg> is in the DOM by id, and the selector works: the
 //     fragment #extent=<last usable extent>&model=<first model> makes the
 //     script draw that curve and write the shown AUC into data-auc, which
 //     must equal the score in the results;
-//   - a screenshot renders (kept in a temp dir and copied to
-//     $AREASWEEP_ARTEFACTS when set).
+//   - a screenshot of the window renders (copied to $AREASWEEP_ARTEFACTS as
+//     report_<width>px.png when set).
+//
+// The figures are drawn with Liberation Sans metrics; the test needs that
+// font installed (Debian fonts-liberation2, installed by setup.sh --test)
+// so that the browser measures the same text widths.
 func TestReportInChromium(t *testing.T) {
 	bin := findChromium()
 	if bin == "" {
@@ -112,7 +185,10 @@ func TestReportInChromium(t *testing.T) {
 		}
 		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
 	}
-	dir, r := writeSample(t)
+	if out, err := exec.Command("fc-match", "Liberation Sans").Output(); err != nil || !strings.Contains(string(out), "Liberation") {
+		t.Fatalf("font Liberation Sans not installed (fc-match says %q, %v): install Debian's fonts-liberation2 (scripts/setup.sh --test)", out, err)
+	}
+	srcDir, r := writeSample(t)
 	model := r.Models[0].Name
 	var ext string
 	var want float64
@@ -129,10 +205,48 @@ func TestReportInChromium(t *testing.T) {
 	if ext == "" {
 		t.Fatal("sample has no scored extent")
 	}
+	html, err := os.ReadFile(filepath.Join(srcDir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	end := bytes.LastIndex(html, []byte("</body>"))
+	if end < 0 {
+		t.Fatal("report.html has no </body>")
+	}
+	checked := append(append(append([]byte{}, html[:end]...), "<script>"+layoutCheckJS+"</script>\n"...), html[end:]...)
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "report.html"), checked, 0o644); err != nil {
+		t.Fatal(err)
+	}
 	page := "file://" + filepath.Join(dir, "report.html") + "#extent=" + url.QueryEscape(ext) + "&model=" + url.QueryEscape(model)
 
-	dom, logs := runChromium(t, bin, chromiumArgs(t.TempDir(), "--enable-logging=stderr", "--v=1", "--virtual-time-budget=5000", "--dump-dom", page))
-	d := string(dom)
+	for _, width := range []int{1400, 800} {
+		t.Run(strconv.Itoa(width)+"px", func(t *testing.T) {
+			t.Parallel() // two browsers at once: each has its own profile folder
+			shot := filepath.Join(t.TempDir(), "screenshot.png")
+			dom, logs := runChromium(t, bin, chromiumArgs(t.TempDir(), "--enable-logging=stderr", "--v=1", "--hide-scrollbars",
+				"--window-size="+strconv.Itoa(width)+",1600", "--virtual-time-budget=5000", "--screenshot="+shot, "--dump-dom", page))
+			checkPage(t, string(dom), string(logs), ext, model, want)
+			data, err := os.ReadFile(shot)
+			if err != nil {
+				t.Fatalf("no screenshot: %v", err)
+			}
+			img, err := png.Decode(bytes.NewReader(data))
+			if err != nil || img.Bounds().Dx() != width {
+				t.Fatalf("screenshot unreadable or not %d px wide: %v", width, err)
+			}
+			if a := os.Getenv("AREASWEEP_ARTEFACTS"); a != "" {
+				if err := os.MkdirAll(a, 0o755); err == nil {
+					copyFile(t, shot, filepath.Join(a, "report_"+strconv.Itoa(width)+"px.png"))
+				}
+			}
+		})
+	}
+}
+
+// checkPage checks one DOM dump and Chromium log of the report.
+func checkPage(t *testing.T, d, logs, ext, model string, want float64) {
+	t.Helper()
 	if v, ok := attr(d, `<html[^>]*>`, "data-ready"); !ok || v != "1" {
 		t.Fatalf("script did not finish (data-ready=%q); DOM starts %q", v, tail(d[:min(len(d), 400)], 400))
 	}
@@ -141,6 +255,21 @@ func TestReportInChromium(t *testing.T) {
 	}
 	if v, _ := attr(d, `<html[^>]*>`, "data-resources"); v != "0" {
 		t.Errorf("page fetched %s resources, want 0", v)
+	}
+	var lay layoutResult
+	if v, ok := attr(d, `<html[^>]*>`, "data-layout"); !ok {
+		t.Error("layout check did not run")
+	} else if err := json.Unmarshal([]byte(v), &lay); err != nil {
+		t.Errorf("layout result %q: %v", v, err)
+	}
+	if lay.Figures != len(figureNames) || lay.Texts < 50 || lay.Tables == 0 {
+		t.Errorf("layout check saw %d figures, %d texts, %d tables", lay.Figures, lay.Texts, lay.Tables)
+	}
+	for _, o := range lay.Outside {
+		t.Errorf("text outside its figure: %s", o)
+	}
+	for _, o := range lay.Overflow {
+		t.Errorf("overflow: %s", o)
 	}
 	for _, f := range append(append([]string{}, figureNames...), "teach") {
 		if !strings.Contains(d, `<svg id="fig-`+f+`"`) {
@@ -169,7 +298,7 @@ func TestReportInChromium(t *testing.T) {
 	// Chromium's own log.
 	allowed := regexp.MustCompile(`^(file|data|about|chrome|chrome-untrusted|blob):`)
 	req := regexp.MustCompile(`NotifyBeforeURLRequest: (\S+)`)
-	for _, line := range strings.Split(string(logs), "\n") {
+	for _, line := range strings.Split(logs, "\n") {
 		if strings.Contains(line, ":CONSOLE") || strings.Contains(line, "CONSOLE(") {
 			t.Errorf("console message: %s", line)
 		}
@@ -180,24 +309,6 @@ func TestReportInChromium(t *testing.T) {
 		u, err := url.Parse(m[1])
 		if err != nil || !hostIn(u.Hostname(), browserOwnHosts) {
 			t.Errorf("network request not made by the browser itself: %s", m[1])
-		}
-	}
-
-	// Screenshot.
-	shotDir := t.TempDir()
-	shot := filepath.Join(shotDir, "screenshot.png")
-	runChromium(t, bin, chromiumArgs(t.TempDir(), "--hide-scrollbars", "--window-size=1200,2600", "--virtual-time-budget=5000", "--screenshot="+shot, page))
-	data, err := os.ReadFile(shot)
-	if err != nil {
-		t.Fatalf("no screenshot: %v", err)
-	}
-	img, err := png.Decode(bytes.NewReader(data))
-	if err != nil || img.Bounds().Dx() != 1200 {
-		t.Fatalf("screenshot unreadable: %v", err)
-	}
-	if a := os.Getenv("AREASWEEP_ARTEFACTS"); a != "" {
-		if err := os.MkdirAll(a, 0o755); err == nil {
-			copyFile(t, shot, filepath.Join(a, "report_screenshot.png"))
 		}
 	}
 }

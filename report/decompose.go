@@ -19,7 +19,7 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 			if sc == nil {
 				break
 			}
-			v, ok, _, _, _, _ := metricValue(m, sc, a.r.Settings.Iterations)
+			v, ok, _, _, _, _ := metricValue(m, sc)
 			if !ok {
 				break
 			}
@@ -50,12 +50,11 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 	for j := 0; j < J; j++ {
 		ranks[j], ties[j] = averageRanks(cols[j], m.HigherIsBetter)
 	}
-	d.BaseExtent = d.Extents[0]
+	d.BaseExtent = BaseExtent(d.Extents)
 	base := 0
 	for j, id := range d.Extents {
-		if id == "base" {
-			d.BaseExtent, base = id, j
-			break
+		if id == d.BaseExtent {
+			base = j
 		}
 	}
 	for j := 0; j < J; j++ {
@@ -71,8 +70,8 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		}
 		d.Rankings = append(d.Rankings, er)
 	}
-	if w, chi2, df, p, ok := kendallW(ranks, ties); ok {
-		d.KendallW, d.ChiSquare, d.DF, d.PValue, d.KendallWDefined = w, chi2, df, p, true
+	if w, ok := kendallW(ranks, ties); ok {
+		d.KendallW, d.KendallWDefined = w, true
 	}
 
 	if J < 2 || I < 2 {
@@ -137,25 +136,14 @@ func orderByRank(models []string, ranks []float64) []string {
 }
 
 func decompositionSentence(m MetricInfo, d *Decomposition) string {
-	var who string
-	switch {
-	case d.ShareExtent >= 0.5:
-		who = "The extent, not the model, explains most of the differences"
-	case d.ShareModel >= 0.5:
-		who = "The model, not the extent, explains most of the differences"
-	case d.ShareResidual >= 0.5:
-		who = "Most of the differences are non-additive: models respond differently to the extent"
-	default:
-		who = "No single source dominates the differences"
-	}
-	s := fmt.Sprintf("%s in %s over %d extents scored for all %d models (extent %s, model %s, non-additive %s of the sum of squares).",
-		who, m.Label, len(d.Extents), len(d.Models), pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
+	s := fmt.Sprintf("Over this family of %d extents scored for all %d models, the sum of squares of %s splits into extent %s, model %s and non-additive %s; the split is a property of the extents chosen (another family gives another split), so it describes this table only.",
+		len(d.Extents), len(d.Models), m.Label, pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
 	if d.KendallWDefined {
-		s += fmt.Sprintf(" Kendall's W = %s: ", f3(d.KendallW))
+		s += fmt.Sprintf(" Kendall's W = %s (a description of agreement, no test): ", f3(d.KendallW))
 		if len(d.DiffersFromBase) == 0 {
-			s += fmt.Sprintf("every extent ranks the models as %s does.", d.BaseExtent)
+			s += fmt.Sprintf("every extent orders the models as %s does.", d.BaseExtent)
 		} else {
-			s += fmt.Sprintf("the ranking differs from %s on %s.", d.BaseExtent, strings.Join(d.DiffersFromBase, ", "))
+			s += fmt.Sprintf("the order of the point estimates differs from %s on %s; see the paired model differences for whether that is beyond noise.", d.BaseExtent, strings.Join(d.DiffersFromBase, ", "))
 		}
 	}
 	return s

@@ -29,7 +29,13 @@ func (s *Sensitivity) findDecomposition(key string) *Decomposition {
 // areaRange formats "from A to B km²", in thousands when B >= 10,000.
 func areaRange(lo, hi float64) string {
 	if hi >= 1e4 {
-		return fmt.Sprintf("from %s to %s thousand km²", trimFloat(lo/1000, 2+boolInt(lo >= 1e4)), trimFloat(hi/1000, 3))
+		thousands := func(v float64, sig int) string {
+			if v >= 1000 {
+				return groupThousands(int64(math.Round(v)))
+			}
+			return trimFloat(v, sig)
+		}
+		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo/1000, 2+boolInt(lo >= 1e4)), thousands(hi/1000, 3))
 	}
 	return fmt.Sprintf("from %s to %s km²", fmtArea(lo), fmtArea(hi))
 }
@@ -41,7 +47,49 @@ func boolInt(b bool) int {
 	return 0
 }
 
-// headline writes the two or three summary sentences.
+// findModelVerdict returns the verdict of metric key for model, or nil.
+func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
+	for i := range s.ModelVerdicts {
+		if s.ModelVerdicts[i].Metric == key && s.ModelVerdicts[i].Model == model {
+			return &s.ModelVerdicts[i]
+		}
+	}
+	return nil
+}
+
+// verdictPhrase is "extent-sensitive (largest +0.078 on X, 95% interval
+// ...)" for a model verdict.
+func verdictPhrase(mv *ModelVerdict) string {
+	if mv.Largest < 0 {
+		if !mv.BaseDefined {
+			return mv.Verdict + " (undefined on " + mv.Base + ")"
+		}
+		return mv.Verdict + " (no difference could be formed)"
+	}
+	d := mv.Diffs[mv.Largest]
+	if d.Method == "exact" {
+		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent)
+	}
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, signed3(d.Low), signed3(d.High))
+}
+
+// testPointText says how many test points the extents hold.
+func testPointText(s *Sensitivity) string {
+	if len(s.TestPoints) == 0 {
+		return ""
+	}
+	lo, hi := s.TestPoints[0], s.TestPoints[0]
+	for _, n := range s.TestPoints {
+		lo, hi = min(lo, n), max(hi, n)
+	}
+	if !s.TestPointsVary {
+		return fmt.Sprintf("%d test points on each", lo)
+	}
+	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
+}
+
+// headline writes the two or three summary sentences: the verdicts only,
+// never the sums-of-squares split (a property of the chosen family).
 func headline(a *analysis, s *Sensitivity) string {
 	if len(s.ScoredExtents) == 0 {
 		return "No extent could be scored, so the scores cannot be compared across extents."
@@ -54,59 +102,45 @@ func headline(a *analysis, s *Sensitivity) string {
 			}
 		}
 	}
-	var lead *Spread
-	var others []string
+	var b strings.Builder
+	fmt.Fprintf(&b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
+	var parts []string
+	tol := ""
 	for _, m := range a.models {
 		sp := s.findSpread("auc", m)
-		if sp == nil || sp.N == 0 {
+		mv := s.findModelVerdict("auc", m)
+		if sp == nil || sp.N == 0 || mv == nil {
 			continue
 		}
-		if lead == nil {
-			lead = sp
-			continue
-		}
-		others = append(others, fmt.Sprintf("%s %s–%s", m, f3(sp.Min), f3(sp.Max)))
+		tol = fmtG(mv.Tolerance)
+		parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
 	}
-	var b strings.Builder
-	fmt.Fprintf(&b, "Across %d extents %s, ", len(s.ScoredExtents), areaRange(lo, hi))
-	if lead == nil {
+	if len(parts) == 0 {
 		b.WriteString("no model has an AUC.")
 		return b.String()
 	}
-	fmt.Fprintf(&b, "AUC of model %s ranged %s–%s", lead.Model, f3(lead.Min), f3(lead.Max))
-	if lead.Slope.Defined {
-		fmt.Fprintf(&b, " (%s per doubling of area)", signed3(lead.Slope.PerDoubling))
-	}
-	if len(others) > 0 {
-		fmt.Fprintf(&b, "; other models: %s", strings.Join(others, ", "))
-	}
-	if len(a.r.Settings.E) > 0 {
-		e := a.r.Settings.E[0]
-		if sp := s.findSpread("partial_roc_e"+fmtG(e), lead.Model); sp != nil && sp.N >= 2 {
-			fmt.Fprintf(&b, ". Partial ROC at E = %s for %s ", fmtG(e), lead.Model)
-			switch {
-			case sp.Verdict == "robust" && sp.BootSDDefined:
-				fmt.Fprintf(&b, "stayed within %s–%s, inside its bootstrap noise", f3(sp.Min), f3(sp.Max))
-			case sp.Verdict == "robust":
-				fmt.Fprintf(&b, "stayed within %s–%s", f3(sp.Min), f3(sp.Max))
-			case sp.BootSDDefined:
-				fmt.Fprintf(&b, "ranged %s–%s, %.1f times its median bootstrap SD", f3(sp.Min), f3(sp.Max), sp.RangeOverBootSD)
-			default:
-				fmt.Fprintf(&b, "ranged %s–%s", f3(sp.Min), f3(sp.Max))
+	b.WriteString(strings.Join(parts, "; "))
+	fmt.Fprintf(&b, ", against our tolerance of ±%s.", tol)
+	if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
+		key := MetricKeyPartialROC(a.r.Settings.E[0])
+		var pr []string
+		for _, m := range a.models {
+			if mv := s.findModelVerdict(key, m); mv != nil {
+				pr = append(pr, fmt.Sprintf("%s for %s", mv.Verdict, m))
 			}
 		}
-	}
-	b.WriteString(".")
-	if d := s.findDecomposition("auc"); d != nil && d.Defined {
-		switch {
-		case d.ShareExtent >= 0.5:
-			fmt.Fprintf(&b, " The extent, not the model, explains most of the AUC differences (%s of the sum of squares; model %s).", pct(d.ShareExtent), pct(d.ShareModel))
-		case d.ShareModel >= 0.5:
-			fmt.Fprintf(&b, " The model, not the extent, explains most of the AUC differences (%s of the sum of squares; extent %s).", pct(d.ShareModel), pct(d.ShareExtent))
-		default:
-			fmt.Fprintf(&b, " Neither extent (%s) nor model (%s) explains most of the AUC differences; the rest is non-additive.", pct(d.ShareExtent), pct(d.ShareModel))
+		if len(pr) > 0 {
+			fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), joinList(pr))
 		}
-	} else if s.Independence.Warn {
+	}
+	for _, r := range s.Rankings {
+		if r.Metric == "auc" && r.Extents > 0 {
+			fmt.Fprintf(&b, " By AUC, %s is better than %s beyond noise on %d of %d extents.", r.Model, r.Other, r.Better, r.Extents)
+			break
+		}
+	}
+	b.WriteString(aboveNullHeadline(s))
+	if s.Independence.Warn {
 		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score is likely inflated.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()

@@ -7,6 +7,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"gonum.org/v1/plot/vg"
 )
 
 func htmlEscape(s string) string { return html.EscapeString(s) }
@@ -79,7 +81,7 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	p.s("<style>" + reportCSS + "</style>\n</head>\n<body>\n")
 	p.f(`<header><h1>How much of the score comes from the extent?</h1><p class="sub">%s · seed %d · %d model%s · %d extents scored</p></header>`+"\n",
 		htmlEscape(sw), r.Seed, len(s.ModelNames), plural(len(s.ModelNames)), len(s.ScoredExtents))
-	p.s(`<nav aria-label="contents"><a href="#summary">Summary</a> <a href="#figures">Figures</a> <a href="#explore">Explore one extent</a> <a href="#analysis">Analysis</a> <a href="#scores">All scores</a> <a href="#extents">Extents</a> <a href="#settings">Settings and inputs</a> <a href="#warnings">Warnings</a> <a href="#methods">Methods text</a></nav>` + "\n")
+	p.s(`<nav aria-label="contents"><a href="#summary">Summary</a> <a href="#figures">Figures</a> <a href="#explore">Explore one extent</a> <a href="#analysis">Analysis</a> <a href="#scores">Scores</a> <a href="#extents">Extents</a> <a href="#settings">Settings and inputs</a> <a href="#warnings">Warnings</a> <a href="#methods">Methods text</a></nav>` + "\n")
 
 	// Summary.
 	p.s(`<section id="summary"><h2>Summary</h2>`)
@@ -89,6 +91,12 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 		p.f(`<li><span class="badge %s">%s</span> %s</li>`, verdictClass(v.Verdict), htmlEscape(v.Verdict), htmlEscape(v.Sentence))
 	}
 	p.s("</ul>")
+	// Models against the nulls.
+	if head, rows := aboveNullSummary(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null per extent</h3>`)
+		p.f("<p>%s</p>", htmlEscape(aboveNullSummaryNote))
+		p.table("tbl-above-null-summary", "", head, rows)
+	}
 	nw := len(r.Warnings) + len(s.Warnings)
 	if nw > 0 {
 		p.f(`<p class="warnnote">%d warning%s: see <a href="#warnings">Warnings</a>.</p>`, nw, plural(nw))
@@ -100,7 +108,12 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	for i, rf := range figs {
 		p.f(`<figure id="figure-%s"><h3>Figure %d. %s</h3>`, rf.fig.Name, i+1, htmlEscape(rf.fig.Title))
 		p.s(inlineSVG(rf.svg, "fig-"+rf.fig.Name, rf.fig.Title))
-		p.f(`<figcaption>%s Files: figures/%s.svg, figures/%s.png.</figcaption></figure>`+"\n", htmlEscape(rf.fig.Caption), rf.fig.Name, rf.fig.Name)
+		p.f(`<figcaption>%s`, htmlEscape(rf.fig.Caption))
+		if rf.fig.Note != "" {
+			p.f(` <span class="note">%s</span>`, htmlEscape(rf.fig.Note))
+		}
+		p.f(` Files for print: figures/%[1]s.pdf (vector), figures/%[1]s.svg, figures/%[1]s.png (%[2]d dpi), %[3]s mm wide.</figcaption></figure>`+"\n",
+			rf.fig.Name, pngDPI, strconv.Itoa(int(math.Round(float64(rf.fig.W/vg.Millimeter)))))
 	}
 	p.s("</section>\n")
 
@@ -118,8 +131,8 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	p.s("</section>\n")
 
 	// Every score.
-	p.s(`<section id="scores"><h2>All scores</h2><p>Click a column header to sort.</p>`)
-	writeScoreTable(&p, r)
+	p.s(`<section id="scores"><h2>Scores</h2>`)
+	writeScoreTables(&p, r)
 	p.s("</section>\n")
 
 	// Extents.
@@ -178,32 +191,60 @@ func writeAnalysisTables(p *page, r *Results) {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	// Spread and slope.
-	p.s(`<h3>Spread across extents</h3><p>Range and sample SD (divisor n−1) across the scored extents, beside the median within-extent bootstrap SD; slope: ordinary least squares against log2(area), i.e. change per doubling of the extent area, with a 95% confidence interval from Student's t.</p>`)
+	// Verdicts with every paired difference from the base extent.
+	p.f(`<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on %s, on the test points both hold (paired). AUC: from each test point's placement (share of the extent's area below it, ties half), standard error sqrt(Σ(D−mean D)²/(n(n−1))) and a normal 95%% interval; the cells are the whole population of the extent, not a sample. Other metrics: %d full-size resamples of the test points, the same for every model and extent, and the 2.5–97.5 percentiles of the resampled differences. Robust: every interval inside ± the tolerance; extent-sensitive: at least one interval wholly outside; otherwise undetermined. The test-set shift is how much the change of test points moved the score on top of the paired difference.</p>`,
+		htmlEscape(s.BaseExtent), r.Settings.PairedResamples)
+	p.s(`<ul class="sentences">`)
+	for _, mv := range s.ModelVerdicts {
+		p.f(`<li><span class="badge %s">%s</span> %s</li>`, verdictClass(mv.Verdict), htmlEscape(mv.Verdict), htmlEscape(mv.Sentence))
+	}
+	p.s("</ul>")
 	var rows [][]cell
+	for _, mv := range s.ModelVerdicts {
+		for _, d := range mv.Diffs {
+			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
+			if !d.Defined {
+				row = append(row, dash, dash, dash, dash, tc("undefined"))
+				rows = append(rows, row)
+				continue
+			}
+			row = append(row, nc(d.Diff, 4), cell{text: f4(d.Low) + " to " + f4(d.High), num: d.Low, isN: true, cls: "n"},
+				tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc(d.Position))
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-differences", "", []string{"metric", "model", "extent", "test points", "common", "difference", "95% interval", "method", "test-set shift", "against tolerance"}, rows)
+
+	// Model comparisons.
+	if len(s.Rankings) > 0 {
+		p.s(`<h3>Models compared extent by extent</h3><p>Paired differences between two models on the same extent and test points; "beyond noise" means the 95% interval excludes 0.</p><ul class="sentences">`)
+		rows = nil
+		for _, rk := range s.Rankings {
+			p.f("<li>%s</li>", htmlEscape(rk.Sentence))
+			rows = append(rows, []cell{tc(label[rk.Metric]), tc(rk.Model + " − " + rk.Other), ic(rk.Extents), ic(rk.Better), ic(rk.Worse), ic(rk.WithinNoise)})
+		}
+		p.s("</ul>")
+		p.table("tbl-model-differences", "", []string{"metric", "models", "extents", "better beyond noise", "worse beyond noise", "within noise"}, rows)
+	}
+
+	// Spread (description).
+	p.s(`<h3>Spread across extents</h3><p>A description of the chosen family: range and SD (divisor n−1) of each score across the scored extents. The extents are nested or overlapping and share their test points, so these are not a sample of possible extents.</p>`)
+	rows = nil
 	for _, sp := range s.Spreads {
 		row := []cell{tc(label[sp.Metric]), tc(sp.Model), ic(sp.N)}
 		if sp.N == 0 {
-			row = append(row, dash, dash, dash, dash, dash, dash, dash, dash, dash, tc(sp.Verdict))
+			row = append(row, dash, dash, dash, dash)
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3))
-		row = append(row, defNum(sp.SD, sp.SDDefined, 3), defNum(sp.BootSDMedian, sp.BootSDDefined, 3), defNum(sp.RangeOverBootSD, sp.RangeOverBootSDDefined, 1))
-		row = append(row, defNum(sp.Slope.PerDoubling, sp.Slope.Defined, 4))
-		if sp.Slope.CIDefined {
-			row = append(row, cell{text: f4(sp.Slope.CILow) + " to " + f4(sp.Slope.CIHigh), num: sp.Slope.CILow, isN: true, cls: "n"})
-		} else {
-			row = append(row, dash)
-		}
-		row = append(row, defNum(sp.Slope.R2, sp.Slope.R2Defined, 2), tc(sp.Verdict))
+		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3), defNum(sp.SD, sp.SDDefined, 3))
 		rows = append(rows, row)
 	}
-	p.table("tbl-spread", "", []string{"metric", "model", "n", "min", "max", "range", "SD", "median boot SD", "range / boot SD", "per doubling", "95% CI", "r²", "verdict"}, rows)
+	p.table("tbl-spread", "", []string{"metric", "model", "extents scored", "minimum", "maximum", "range", "SD across extents"}, rows)
 
 	// Decomposition.
 	if len(s.Decompositions) > 0 {
-		p.s(`<h3>Extent or model?</h3><p>Sum of squares of each metric over the models × extents table (extents scored for every model), split into extent and model main effects and the non-additive rest (one value per cell, so the rest is interaction plus noise). Kendall's W: agreement of the model rankings across extents (1 = the same ranking everywhere), with tie correction.</p>`)
+		p.s(`<h3>Sums of squares of the models × extents table</h3><p>A property of the chosen family, not a finding about the models: each metric's sum of squares over the extents scored for every model, split into extent and model main effects and the non-additive rest; another family of extents gives another split. Kendall's W describes how far the extents agree on the order of the models (1 = the same order everywhere, tie-corrected); no test is attached because the extents are not independent.</p>`)
 		rows = nil
 		for _, d := range s.Decompositions {
 			row := []cell{tc(label[d.Metric]), ic(len(d.Extents))}
@@ -213,17 +254,12 @@ func writeAnalysisTables(p *page, r *Results) {
 				row = append(row, dash, dash, dash)
 			}
 			row = append(row, defNum(d.KendallW, d.KendallWDefined, 3))
-			if d.KendallWDefined {
-				row = append(row, cell{text: fmtP(d.PValue), num: d.PValue, isN: true, cls: "n"})
-			} else {
-				row = append(row, dash)
-			}
 			row = append(row, tc(d.BaseExtent), tc(strings.Join(d.DiffersFromBase, ", ")))
 			rows = append(rows, row)
 		}
-		p.table("tbl-decomposition", "", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "p (chi-square)", "base extent", "ranking differs on"}, rows)
+		p.table("tbl-decomposition", "", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "base extent", "order differs on"}, rows)
 		if d := s.findDecomposition("auc"); d != nil && len(d.Rankings) > 0 {
-			p.s(`<h3>Model ranking by AUC on each extent</h3>`)
+			p.s(`<h3>Order of the models by AUC on each extent</h3><p>Point estimates only; the paired model differences above say whether an order is beyond noise.</p>`)
 			rows = nil
 			for _, er := range d.Rankings {
 				row := []cell{tc(er.Extent)}
@@ -266,7 +302,13 @@ func writeAnalysisTables(p *page, r *Results) {
 				rows = append(rows, row)
 			}
 		}
-		p.table("tbl-chains", "", []string{"chain", "model", "step", "ring area km²", "ring AUC", "AUC before", "AUC after", "change", "share %"}, rows)
+		p.table("tbl-chains", "", []string{"nested chain", "model", "step", "ring area (km²)", "AUC of the ring alone", "AUC before", "AUC after", "change", "share of the chain's change (%)"}, rows)
+		rows = nil
+		for _, c := range s.Chains {
+			rows = append(rows, []cell{tc(c.Chain), tc(c.Model), ic(c.Slope.N), defNum(c.Slope.PerDoubling, c.Slope.Defined, 4), defNum(c.Slope.R2, c.Slope.R2Defined, 2)})
+		}
+		p.s(`<p>Slope of AUC against log2(area) along each chain: a description of the chain (its members are nested and share test points), with no interval.</p>`)
+		p.table("tbl-chain-slopes", "", []string{"nested chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
 	}
 
 	// Truncation.
@@ -276,6 +318,17 @@ func writeAnalysisTables(p *page, r *Results) {
 	}
 	p.s("</ul>")
 
+	// Models against the nulls, every metric.
+	if rows := aboveNullRows(r); len(rows) > 0 {
+		p.s(`<h3>Model minus null</h3><ul class="sentences">`)
+		for _, an := range s.AboveNull {
+			p.f("<li>%s</li>", htmlEscape(an.Sentence))
+		}
+		p.s("</ul>")
+		p.f("<p>%s</p>", htmlEscape(aboveNullNote))
+		p.table("tbl-above-null", "", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+	}
+
 	// Independence.
 	ind := s.Independence
 	p.s(`<h3>Independence of the test points</h3>`)
@@ -284,9 +337,15 @@ func writeAnalysisTables(p *page, r *Results) {
 		p.table("tbl-independence", "Distance from each test point to the nearest training point (km)", []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
 			[][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}})
 	}
+	if sb := sortingBiasRows(r); len(sb) > 0 {
+		p.s(`<h3>Spatial sorting bias</h3>`)
+		p.f("<p>%s</p>", htmlEscape(sortingBiasNote))
+		p.table("tbl-sorting-bias", "Distance to the nearest training point: test points against the extent's cells", []string{"extent", "area",
+			"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"}, sb)
+	}
 
 	// Where errors fall.
-	p.s(`<h3>Where errors fall</h3><p>Test points omitted at each threshold (ids are data line numbers in the occurrence file; the map marks those omitted by the first model at the minimum training presence).</p>`)
+	p.s(`<h3>Where errors fall</h3><p>Test points omitted at each threshold (ids are line numbers in the occurrence file; the maps mark the test points the first model omits at the minimum and at the 10th percentile training presence).</p>`)
 	rows = nil
 	for _, o := range s.OmittedPoints {
 		ids := make([]string, len(o.IDs))
@@ -295,7 +354,7 @@ func writeAnalysisTables(p *page, r *Results) {
 		}
 		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(strings.Join(ids, ", "))})
 	}
-	p.table("tbl-omitted", "", []string{"model", "threshold", "value", "omitted", "test points", "share", "ids"}, rows)
+	p.table("tbl-omitted", "", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 }
 
 func yesNo(b bool) string {
@@ -320,70 +379,43 @@ func defNum(v float64, ok bool, dec int) cell {
 	return nc(v, dec)
 }
 
-// scoreColumns lists the E values and threshold keys present in the scores.
-func scoreColumns(r *Results) (es []float64, ths []MetricInfo) {
-	for _, m := range r.Sensitivity.Metrics {
-		switch m.Kind {
-		case "partial_roc":
-			es = append(es, m.E)
-		case "omission":
-			ths = append(ths, m)
-		}
+// ruleName spells out a threshold rule: "minimum training presence",
+// "10th percentile training presence" or "fixed cut 0.5".
+func ruleName(t Threshold) string {
+	if t.Name == "fixed" {
+		return "fixed cut " + fmtG(t.Value)
 	}
-	return es, ths
+	return thresholdLabel(t.Name)
 }
 
-func writeScoreTable(p *page, r *Results) {
-	es, ths := scoreColumns(r)
-	head := []string{"model", "extent", "area km²", "test pts", "train pts", "scored", "AUC", "AUC unweighted", "AUC train", "AUC boot SD"}
-	for _, e := range es {
-		g := fmtG(e)
-		head = append(head, "pROC ratio E="+g, "pROC CI E="+g, "pROC p E="+g)
-	}
-	for _, t := range ths {
-		name := strings.TrimPrefix(t.Label, "omission at ")
-		head = append(head, "omission "+name, "area "+name, "p binomial "+name)
-	}
-	head = append(head, "Boyce")
+// formedPartialROC reports whether at least one bootstrap resample formed a
+// partial ROC ratio.
+func formedPartialROC(pr PartialROC) bool {
+	return !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations)
+}
+
+// writeScoreTables writes the scores as three long tables: the scores
+// with one value per model and extent, the partial ROC results (one row
+// per model, extent and E) and the threshold tests (one row per model,
+// extent and rule).
+func writeScoreTables(p *page, r *Results) {
+	st := r.Settings
+	p.s(`<h3 id="scores-main">Scores per model and extent</h3>`)
+	p.s(`<p>Every score uses the test records inside the extent (training records for the training AUC). AUC standard error: from the test records' placements, the extent's cells taken as the whole population. AUC resample SD: the SD of AUC over the run's full-size paired resamples of the test records; it estimates the same quantity. Click a column header to sort.</p>`)
+	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
+		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
 	for _, sc := range r.Scores {
-		row := []cell{tc(sc.Model), tc(sc.Extent), areaCell(sc.AreaKm2)}
+		row := []cell{tc(modelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
 		if !sc.Scored {
 			row = append(row, dash, dash, tc("no: "+sc.NotScored))
-			for i := 6; i < len(head); i++ {
+			for len(row) < len(head) {
 				row = append(row, dash)
 			}
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
-		for _, e := range es {
-			var pr *PartialROC
-			for i := range sc.PartialROC {
-				if math.Abs(sc.PartialROC[i].E-e) <= 1e-12 {
-					pr = &sc.PartialROC[i]
-				}
-			}
-			if pr == nil || (pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-				row = append(row, dash, dash, dash)
-				continue
-			}
-			row = append(row, nc(pr.Ratio, 3), cell{text: f3(pr.CILow) + "–" + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"}, cell{text: fmtP(pr.PValue), num: pr.PValue, isN: true, cls: "n"})
-		}
-		for _, t := range ths {
-			var th *Threshold
-			for i := range sc.Thresholds {
-				x := &sc.Thresholds[i]
-				if x.Name == t.Threshold && (x.Name != "fixed" || math.Abs(x.Value-t.ThresholdValue) <= 1e-12) {
-					th = x
-				}
-			}
-			if th == nil {
-				row = append(row, dash, dash, dash)
-				continue
-			}
-			row = append(row, nc(th.Omission, 3), nc(th.AreaFraction, 3), cell{text: fmtP(th.PBinomial), num: th.PBinomial, isN: true, cls: "n"})
-		}
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCSE, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
 		if sc.Boyce != nil {
 			row = append(row, nc(sc.Boyce.Index, 3))
 		} else {
@@ -392,6 +424,57 @@ func writeScoreTable(p *page, r *Results) {
 		rows = append(rows, row)
 	}
 	p.table("tbl-scores", "", head, rows)
+
+	p.s(`<h3 id="scores-partial-roc">Partial ROC</h3>`)
+	p.f(`<p>One row per model, extent and allowable omission E. Full-sample ratio: all test records inside the extent. Resamples: %d bootstrap draws of %s%% of those test records; the mean, the 2.5th to 97.5th percentiles and the share of resamples with a ratio of at most 1 (the P value) come from the resamples that formed a ratio.</p>`,
+		st.Iterations, fmtG(100*st.ResampleFraction))
+	head = []string{"model", "extent", "E", "partial ROC ratio, full sample", "partial ROC ratio, resample mean", "2.5th to 97.5th percentile of resamples", "share of resamples at or below 1 (P)", "resamples formed"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			row := []cell{tc(sc.Model), tc(sc.Extent), nc(pr.E, 2)}
+			full := nc(pr.Ratio, 3)
+			if !pr.Defined {
+				full = cell{text: "undefined: " + pr.Reason}
+			}
+			if !formedPartialROC(pr) {
+				row = append(row, full, dash, dash, dash)
+			} else {
+				row = append(row, full, nc(pr.RatioMean, 3),
+					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},
+					cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
+			}
+			row = append(row, cell{text: fmt.Sprintf("%d of %d", pr.Iterations-pr.NotFormed, pr.Iterations), num: float64(pr.Iterations - pr.NotFormed), isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-partial-roc", "", head, rows)
+
+	p.s(`<h3 id="scores-thresholds">Threshold tests</h3>`)
+	p.s(`<p>One row per model, extent and rule. The cut comes from the training records (or is fixed), so it is the same on every extent; the test records are those inside the extent. Missed: test records below the cut. One-sided binomial P: the chance of at least as many test records at or above the cut if they fell at random on the extent, each with probability equal to the share of the extent at or above the cut. That share, and so P, changes with the extent; the share missed changes only when an extent leaves test records out.</p>`)
+	head = []string{"model", "extent", "rule", "cut value", "test records missed (k of n)", "share missed", "share of the extent at or above the cut", "one-sided binomial P"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, t := range sc.Thresholds {
+			missed := t.N - t.Successes
+			row := []cell{tc(sc.Model), tc(sc.Extent), tc(ruleName(t)), nc(t.Value, 4),
+				cell{text: fmt.Sprintf("%d of %d", missed, t.N), num: float64(missed), isN: true, cls: "n"}}
+			if t.N > 0 {
+				row = append(row, nc(t.Omission, 3))
+			} else {
+				row = append(row, dash)
+			}
+			row = append(row, nc(t.AreaFraction, 3), cell{text: fmtP(t.PBinomial), num: t.PBinomial, isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	p.table("tbl-thresholds", "", head, rows)
 }
 
 func writeExtentTables(p *page, r *Results) {
@@ -405,7 +488,8 @@ func writeExtentTables(p *page, r *Results) {
 		rows = append(rows, []cell{tc(e.ID), tc(e.Kind), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
 			areaCell(e.AreaKm2), nc(e.ShareOfRaster, 3), ic(e.TrainPoints), ic(e.TestPoints), tc(status)})
 	}
-	p.table("tbl-extents", "", []string{"id", "kind", "parameters", "chain", "cells", "area km²", "share of raster", "train pts", "test pts", "status"}, rows)
+	p.s(`<p>One row per extent of the family: its cells and true area among the cells where the first model has data, its share of the raster's valid area, and the training and test records inside it. Extents with status empty, or duplicate of an earlier one, are left out of the analysis.</p>`)
+	p.table("tbl-extents", "", []string{"id", "kind", "parameters", "nested chain", "cells", "area (km²)", "share of the raster", "training records inside", "test records inside", "status"}, rows)
 	if len(s.SkippedExtents) > 0 {
 		p.s("<h3>Left out of the analysis</h3><ul>")
 		for _, e := range s.SkippedExtents {
@@ -440,8 +524,11 @@ func writeSettings(p *page, r *Results) {
 		{tc("ecoregion minimum points"), tc(strconv.Itoa(st.EcoregionMinPoints))},
 		{tc("ecoregion field"), tc(st.EcoregionField)},
 		{tc("partial ROC E"), tc(fl(st.E))},
-		{tc("bootstrap iterations"), tc(strconv.Itoa(st.Iterations))},
-		{tc("resample fraction"), tc(fmtG(st.ResampleFraction))},
+		{tc("bootstrap iterations (published partial ROC bootstrap)"), tc(strconv.Itoa(st.Iterations))},
+		{tc("resample fraction (published partial ROC bootstrap)"), tc(fmtG(st.ResampleFraction))},
+		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
+		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},
 		{tc("fixed thresholds"), tc(fl(st.FixedThresholds))},
 		{tc("thin to one record per cell"), tc(yesNo(st.ThinPerCell))},
 		{tc("Boyce window"), tc(fmtG(st.BoyceWindow))},
@@ -451,8 +538,8 @@ func writeSettings(p *page, r *Results) {
 		{tc("cell areas"), tc(r.Grid.CellAreaNote)},
 		{tc("points"), tc(fmt.Sprintf("%d train, %d test, %d thinned, %d outside raster, %d on no data",
 			r.PointCounts.Train, r.PointCounts.Test, r.PointCounts.Thinned, r.PointCounts.OutsideRaster, r.PointCounts.NoData))},
-		{tc("analysis cut-offs (our choices)"), tc(fmt.Sprintf("robust if range ≤ %g × median bootstrap SD, else ≤ %g; floor flag ≥ %s of area; tail flag > %g of the area axis; near = within %g cells, warn above %s",
-			RobustBootFactor, RobustAbsRange, pct(FloorShareFlag), TailJumpFlag, NearCells, pct(NearShareWarn)))},
+		{tc("analysis cut-offs (our choices)"), tc(fmt.Sprintf("floor flag ≥ %s of area; tie-tail flag > %g of the area axis; near = within %g cells, warn above %s",
+			pct(FloorShareFlag), TailJumpFlag, NearCells, pct(NearShareWarn)))},
 	}
 	p.table("tbl-settings", "", []string{"setting", "value"}, rows)
 	var in [][]cell
@@ -463,7 +550,7 @@ func writeSettings(p *page, r *Results) {
 	p.table("tbl-inputs", "", []string{"role", "path", "SHA-256"}, in)
 	var ms [][]cell
 	for _, m := range r.Models {
-		ms = append(ms, []cell{tc(m.Name), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
+		ms = append(ms, []cell{tc(modelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
 	}
 	p.s("<h3>Models</h3>")
 	p.table("tbl-models", "", []string{"model", "path", "minimum", "maximum", "share of area at minimum"}, ms)
@@ -471,22 +558,22 @@ func writeSettings(p *page, r *Results) {
 
 // teachCell is one model x extent entry of the embedded data.
 type teachCell struct {
-	Model      string    `json:"model"`
-	Extent     string    `json:"extent"`
-	Scored     bool      `json:"scored"`
-	Reason     string    `json:"reason,omitempty"`
-	AUC        float64   `json:"auc"`
-	AUCSD      float64   `json:"auc_sd"`
-	PROC       float64   `json:"proc"`
-	PROCLow    float64   `json:"proc_low"`
-	PROCHigh   float64   `json:"proc_high"`
-	PROCOK     bool      `json:"proc_ok"`
-	Omission   float64   `json:"omission"`
-	AreaFrac   float64   `json:"area_fraction"`
-	ThreshOK   bool      `json:"threshold_ok"`
-	TestPoints int       `json:"test_points"`
-	X          []float64 `json:"x"`
-	Y          []float64 `json:"y"`
+	Model          string    `json:"model"`
+	Extent         string    `json:"extent"`
+	Scored         bool      `json:"scored"`
+	Reason         string    `json:"reason,omitempty"`
+	AUC            float64   `json:"auc"`
+	AUCSD          float64   `json:"auc_sd"`
+	PartialROC     float64   `json:"partial_roc"`
+	PartialROCLow  float64   `json:"partial_roc_low"`
+	PartialROCHigh float64   `json:"partial_roc_high"`
+	PartialROCOK   bool      `json:"partial_roc_ok"`
+	Omission       float64   `json:"omission"`
+	AreaFrac       float64   `json:"area_fraction"`
+	ThreshOK       bool      `json:"threshold_ok"`
+	TestPoints     int       `json:"test_points"`
+	X              []float64 `json:"x"`
+	Y              []float64 `json:"y"`
 }
 
 type teachExtent struct {
@@ -547,8 +634,8 @@ func teachData(r *Results) ([]byte, error) {
 			}
 			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
 			for _, pr := range sc.PartialROC {
-				if math.Abs(pr.E-pl.E) <= 1e-12 && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-					c.PROC, c.PROCLow, c.PROCHigh, c.PROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
+				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
+					c.PartialROC, c.PartialROCLow, c.PartialROCHigh, c.PartialROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
 				}
 			}
 			for _, t := range sc.Thresholds {

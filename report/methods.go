@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
 
@@ -59,7 +60,7 @@ func methodsText(r *Results) string {
 		}
 		first = false
 	}
-	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d calibration extents built with %s: %s.",
+	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extents built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
 		len(models), plural(len(models)), joinList(models), len(fam), sw, joinList(fam))
 	if len(s.SkippedExtents) > 0 {
 		var sk []string
@@ -91,25 +92,38 @@ func methodsText(r *Results) string {
 		fmt.Fprintf(&b, " (%s)", joinList(dropped))
 	}
 	b.WriteString(".")
-	fmt.Fprintf(&b, " On each extent we computed the full AUC of the test records against every cell, weighted by cell area (%s)", strings.TrimSpace(r.Grid.CellAreaNote))
-	if len(st.E) > 0 {
-		fmt.Fprintf(&b, ", the partial ROC ratio (Peterson et al. 2008) at E = %s from %d bootstrap resamples of %s%% of the test records (seed %d)",
-			fmtList(st.E, ""), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed)
+	if s.TestPointsVary {
+		var fewer []string
+		for i, id := range s.ScoredExtents {
+			if i < len(s.TestPoints) && s.TestPoints[i] != pc.Test {
+				fewer = append(fewer, fmt.Sprintf("%s %d", id, s.TestPoints[i]))
+			}
+		}
+		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %d on most, %s.", pc.Test, joinList(fewer))
 	}
-	b.WriteString(", omission rates at the minimum and 10th-percentile training presence")
+	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
+	if len(st.E) > 0 {
+		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from the published bootstrap of %d resamples of %s%% of the test records (seed %d; p is not resolved below 1/%d)",
+			fmtList(st.E, ""), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+	}
+	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
 		fmt.Fprintf(&b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
 	}
-	b.WriteString(" with a one-sided binomial test")
+	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, ", and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps)", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram over the model's exact value range, each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
 	}
 	b.WriteString(".")
-	b.WriteString(" To describe the effect of the extent we report, per metric and model, the range and sample SD across extents beside the median within-extent bootstrap SD, and the ordinary least-squares slope against log2 of the extent area with its 95% confidence interval.")
+	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
+	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
+	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise.",
+		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents and the slope of AUC against log2 of the area along each nested chain")
 	if len(models) >= 2 {
-		b.WriteString(" The spread of each metric over the models x extents table was split into extent, model and non-additive sums of squares, and the agreement of the model rankings across extents was measured with Kendall's W corrected for ties (Legendre 2005).")
+		b.WriteString(", the split of the sums of squares of the models × extents table (a property of the extents chosen) and Kendall's W of the model order (Legendre 2005); models were compared by their paired differences on each extent")
 	}
-	b.WriteString("\n\n")
+	b.WriteString(".\n\n")
 
 	// Results in numbers.
 	b.WriteString("Results: ")
@@ -120,9 +134,14 @@ func methodsText(r *Results) string {
 	b.WriteString(reviewerText(r))
 	b.WriteString("\n\n")
 	b.WriteString("## References\n\n")
-	b.WriteString("- Peterson, A.T., Papeş, M. & Soberón, J. (2008) Rethinking receiver operating characteristic analysis applications in ecological niche modeling. Ecological Modelling 213: 63-72.\n")
-	b.WriteString("- Hirzel, A.H., Le Lay, G., Helfer, V., Randin, C. & Guisan, A. (2006) Evaluating the ability of habitat suitability models to predict species presences. Ecological Modelling 199: 142-152.\n")
-	b.WriteString("- Legendre, P. (2005) Species associations: the Kendall coefficient of concordance revisited. Journal of Agricultural, Biological and Environmental Statistics 10: 226-245.\n")
+	refs := slices.Clone(references)
+	if len(nulls(r)) > 0 {
+		refs = append(refs, hijmans2012)
+		slices.Sort(refs)
+	}
+	for _, ref := range refs {
+		b.WriteString("- " + ref + "\n")
+	}
 	return b.String()
 }
 
@@ -133,26 +152,36 @@ func plural(n int) string {
 	return "s"
 }
 
-// resultNumbers states the AUC and partial ROC spread per model.
+// references are the methods cited in methods.md.
+// hijmans2012 is cited when the report holds a null.
+const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distribution models: removing spatial sorting bias and calibration with a null model. Ecology 93: 679-688."
+
+var references = []string{
+	"Anderson, R.P., Lew, D. & Peterson, A.T. (2003) Evaluating predictive models of species' distributions: criteria for selecting optimal models. Ecological Modelling 162: 211-232.",
+	"DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Comparing the areas under two or more correlated receiver operating characteristic curves: a nonparametric approach. Biometrics 44: 837-845.",
+	"Efron, B. & Tibshirani, R.J. (1993) An Introduction to the Bootstrap. Chapman & Hall, New York.",
+	"Hanley, J.A. & McNeil, B.J. (1982) The meaning and use of the area under a receiver operating characteristic (ROC) curve. Radiology 143: 29-36.",
+	"Hirzel, A.H., Le Lay, G., Helfer, V., Randin, C. & Guisan, A. (2006) Evaluating the ability of habitat suitability models to predict species presences. Ecological Modelling 199: 142-152.",
+	"Legendre, P. (2005) Species associations: the Kendall coefficient of concordance revisited. Journal of Agricultural, Biological and Environmental Statistics 10: 226-245.",
+	"Peterson, A.T., Papeş, M. & Soberón, J. (2008) Rethinking receiver operating characteristic analysis applications in ecological niche modeling. Ecological Modelling 213: 63-72.",
+}
+
+// resultNumbers states, per model, the AUC range and verdict, the partial
+// ROC verdict, the model comparison and the independence check.
 func resultNumbers(r *Results) string {
 	s := r.Sensitivity
 	var parts []string
 	for _, m := range s.ModelNames {
 		sp := s.findSpread("auc", m)
-		if sp == nil || sp.N == 0 {
+		mv := s.findModelVerdict("auc", m)
+		if sp == nil || sp.N == 0 || mv == nil {
 			continue
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extents", m, f3(sp.Min), f3(sp.Max), sp.N)
-		if sp.Slope.CIDefined {
-			t += fmt.Sprintf(" (%s per doubling of area, 95%% CI %s to %s)", signed3(sp.Slope.PerDoubling), signed3(sp.Slope.CILow), signed3(sp.Slope.CIHigh))
-		}
-		if sp.BootSDDefined {
-			t += fmt.Sprintf(", against a median bootstrap SD of %s", f3(sp.BootSDMedian))
-		}
+		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extents (%s on %s, SE %s from the test records) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N,
+			f3(mv.BaseValue), mv.Base, f3(baseSE(r, m, mv.Base)), verdictPhrase(mv))
 		if len(r.Settings.E) > 0 {
-			e := r.Settings.E[0]
-			if pr := s.findSpread("partial_roc_e"+fmtG(e), m); pr != nil && pr.N > 0 {
-				t += fmt.Sprintf("; its partial ROC ratio at E = %s ranged %s–%s", fmtG(e), f3(pr.Min), f3(pr.Max))
+			if pv := s.findModelVerdict(MetricKeyPartialROC(r.Settings.E[0]), m); pv != nil {
+				t += fmt.Sprintf("; its partial ROC ratio at E = %s was %s", fmtG(r.Settings.E[0]), verdictPhrase(pv))
 			}
 		}
 		parts = append(parts, t)
@@ -161,22 +190,29 @@ func resultNumbers(r *Results) string {
 	if len(parts) > 0 {
 		out = strings.Join(parts, ". ") + "."
 	}
-	if d := s.findDecomposition("auc"); d != nil && d.Defined {
-		out += fmt.Sprintf(" Over the %d extents scored for every model, the extent accounted for %s of the sum of squares of AUC, the model for %s and the non-additive part for %s",
-			len(d.Extents), pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
-		if d.KendallWDefined {
-			out += fmt.Sprintf("; Kendall's W of the model rankings was %s (chi-square = %s, df = %d, %s)", f3(d.KendallW), f3(d.ChiSquare), d.DF, fmtPText(d.PValue))
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Extents > 0 {
+			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extents, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse, rk.WithinNoise)
 		}
-		out += "."
 	}
 	if s.Independence.Defined {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
 			trimFloat(s.Independence.Median, 3), pct(s.Independence.NearShare), NearCells)
 	}
+	out += nullSentences(r)
 	return strings.TrimSpace(out)
 }
 
-// fmtP formats a p-value.
+// baseSE returns the placement SE of model's AUC on extent.
+func baseSE(r *Results, model, extent string) float64 {
+	for _, sc := range r.Scores {
+		if sc.Model == model && sc.Extent == extent && sc.Scored {
+			return sc.AUCSE
+		}
+	}
+	return 0
+}
+
 // fmtP formats a p-value for a table cell: "< 0.001" or "0.042".
 func fmtP(p float64) string {
 	if p < 0.001 {
@@ -185,22 +221,28 @@ func fmtP(p float64) string {
 	return f3(p)
 }
 
-// fmtPText formats a p-value for prose: "p < 0.001" or "p = 0.042".
-func fmtPText(p float64) string {
-	if p < 0.001 {
-		return "p < 0.001"
+// fmtPResampled formats a p-value estimated from b resamples, which cannot
+// resolve values below 1/b: "< 0.002" for p = 0 and b = 500, else three
+// decimals (or fmtP's "< 0.001" when 1/b is smaller than that).
+func fmtPResampled(p float64, b int) string {
+	if b <= 0 {
+		return "–"
 	}
-	return "p = " + f3(p)
+	if floor := 1 / float64(b); p < floor {
+		return "< " + trimFloat(floor, 2)
+	}
+	return fmtP(p)
 }
 
 // reviewerText answers "is the score a property of the model or of the
 // extent?" with this run's numbers.
 func reviewerText(r *Results) string {
 	s := r.Sensitivity
+	st := r.Settings
 	var b strings.Builder
 	n := len(s.ScoredExtents)
-	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the calibration extent. ")
-	fmt.Fprintf(&b, "We rescored the models on %d alternative extents", n)
+	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. ")
+	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d alternative evaluation extents", n)
 	if n > 0 {
 		lo, hi := -1.0, -1.0
 		for _, e := range r.Extents {
@@ -217,39 +259,86 @@ func reviewerText(r *Results) string {
 		}
 		fmt.Fprintf(&b, " spanning %s–%s km²", fmtArea(lo), fmtArea(hi))
 	}
-	b.WriteString(" with the same test records and settings. ")
-	var robust, sensitive []string
+	if s.TestPointsVary {
+		lo, hi := s.TestPoints[0], s.TestPoints[0]
+		for _, n := range s.TestPoints {
+			lo, hi = min(lo, n), max(hi, n)
+		}
+		fmt.Fprintf(&b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
+	}
+	b.WriteString(". ")
+	fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we fixed in advance (AUC ±%s, partial ROC ratio ±%s, omission ±%s, Boyce index ±%s). ",
+		fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
 		switch v.Verdict {
 		case "robust":
 			robust = append(robust, v.Label)
 		case "extent-sensitive":
 			sensitive = append(sensitive, v.Label)
+		default:
+			undetermined = append(undetermined, v.Label)
 		}
 	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s changed with the extent by more than their bootstrap noise or our cut-off of %g", upperFirst(joinList(sensitive)), RobustAbsRange)
-		if len(robust) > 0 {
-			fmt.Fprintf(&b, ", while %s did not", joinList(robust))
-		}
-		b.WriteString(". ")
-	} else if len(robust) > 0 {
-		fmt.Fprintf(&b, "%s stayed within their bootstrap noise or our cut-off of %g across extents. ", upperFirst(joinList(robust)), RobustAbsRange)
+		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
 	}
-	if d := s.findDecomposition("auc"); d != nil && d.Defined {
-		fmt.Fprintf(&b, "The extent accounts for %s of the variation in AUC among models and extents and the model for %s", pct(d.ShareExtent), pct(d.ShareModel))
-		if d.KendallWDefined {
-			if len(d.DiffersFromBase) == 0 {
-				fmt.Fprintf(&b, "; the ranking of the models was the same on every extent (Kendall's W = %s)", f3(d.KendallW))
-			} else {
-				fmt.Fprintf(&b, "; the ranking of the models changed on %d of %d extents relative to %s (Kendall's W = %s)", len(d.DiffersFromBase), len(d.Extents), d.BaseExtent, f3(d.KendallW))
-			}
-		}
-		b.WriteString(". ")
+	if len(robust) > 0 {
+		fmt.Fprintf(&b, "%s stayed within the tolerance for every model. ", upperFirst(joinList(robust)))
 	}
-	b.WriteString("We therefore report the scores together with the extent they were computed on, read differences between models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	if len(undetermined) > 0 {
+		fmt.Fprintf(&b, "For %s our test records are too few (or the score undefined) to tell. ", joinList(undetermined))
+	}
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Extents > 0 {
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extents and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse)
+		}
+	}
+	b.WriteString(reviewerNullText(s))
+	b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
 	if s.Independence.Warn {
 		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so all scores are likely optimistic.", pct(s.Independence.NearShare), NearCells)
+	}
+	return b.String()
+}
+
+// reviewerNullText tells the reviewer, for AUC on the base extent, whether
+// each model beats each null scored on the same test records (the paired
+// test of Sensitivity.AboveNull), or "" when no null was scored.
+func reviewerNullText(s *Sensitivity) string {
+	var beat, not []string
+	null := ""
+	for i := range s.AboveNull {
+		an := &s.AboveNull[i]
+		if an.Metric != "auc" {
+			continue
+		}
+		g := an.gap(an.BaseExtent)
+		if g == nil || !g.Defined {
+			continue
+		}
+		null = an.Null
+		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s, against %s)", an.Model, signed3(g.Diff), signed3(g.Low), signed3(g.High), an.Null)
+		if an.BaseReading == ReadingAbove {
+			beat = append(beat, part)
+		} else {
+			not = append(not, part)
+		}
+	}
+	if null == "" {
+		return ""
+	}
+	var b strings.Builder
+	b.WriteString("We also scored a null that knows only where the training records are (minus the distance to the nearest one; Hijmans 2012) on the same extents and test records. ")
+	if len(beat) > 0 {
+		fmt.Fprintf(&b, "On the base extent the AUC of %s is above the null beyond noise. ", joinList(beat))
+	}
+	if len(not) > 0 {
+		verb := "does"
+		if len(not) > 1 {
+			verb = "do"
+		}
+		fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed the null's beyond noise, so on that extent AUC shows no skill beyond the geography of the records. ", joinList(not), verb)
 	}
 	return b.String()
 }

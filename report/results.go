@@ -9,7 +9,22 @@ import (
 
 // SchemaVersion is the version of the results.json layout written by this
 // package. It changes whenever a field is renamed or its meaning changes.
-const SchemaVersion = 1
+//
+// Version 2 existed in two forms, one from each of two lines of work, and
+// version 3 holds both:
+//   - per-test-point placements, auc_se, the DeLong variance, paired
+//     differences ("paired"), tolerances and paired resamples in the
+//     settings, auc_boot_sd from full-size resamples, partial ROC "defined"
+//     with the tie rule, and the equivalence verdicts of the sensitivity
+//     analysis;
+//   - models may be nulls (Model.Role), scored like models (placements and
+//     paired records included) but kept out of every ranking and of the
+//     sensitivity analysis; extents carry the spatial sorting bias;
+//     settings.distance_null;
+//
+// and adds model above null: paired records of kind "null" (every model
+// minus every null per extent) and sensitivity.above_null.
+const SchemaVersion = 3
 
 // Results is the whole of one run as written to results.json. Every slice is
 // kept in a stable order (extents in family order, scores by model then
@@ -29,6 +44,7 @@ type Results struct {
 	Rings         []Ring       `json:"rings"`
 	Omissions     []Omission   `json:"omissions"`
 	Curves        []Curve      `json:"curves"`
+	Paired        []Paired     `json:"paired"`
 	Preview       *Preview     `json:"preview,omitempty"`
 	Sensitivity   *Sensitivity `json:"sensitivity,omitempty"`
 	Warnings      []string     `json:"warnings"`
@@ -58,11 +74,41 @@ type Settings struct {
 	ThinPerCell        bool      `json:"thin_per_cell"`
 	BoyceWindow        float64   `json:"boyce_window"`
 	BoyceSteps         int       `json:"boyce_steps"`
+	// DistanceNull is true when the distance-only null was scored.
+	DistanceNull bool `json:"distance_null"`
+	// PairedResamples is B, the number of full-size paired resamples of the
+	// test points (one set, drawn from the run seed alone, shared by every
+	// model and extent).
+	PairedResamples int `json:"paired_resamples"`
+	// Tolerances of the equivalence verdicts (our own defaults, see
+	// DefaultToleranceAUC and the others): a difference from the base
+	// extent whose 95% interval lies inside -tolerance..+tolerance is
+	// negligible. ToleranceAUC serves both AUCs, ToleranceOmission the
+	// omission rates and the predicted area at the minimum training
+	// presence.
+	ToleranceAUC        float64 `json:"tolerance_auc"`
+	TolerancePartialROC float64 `json:"tolerance_partial_roc"`
+	ToleranceOmission   float64 `json:"tolerance_omission"`
+	ToleranceBoyce      float64 `json:"tolerance_boyce"`
 }
+
+// Default tolerances of the equivalence verdicts. They are our own choice,
+// not a published standard, and the report prints the ones used:
+//
+//	AUC (both)          0.02   a fiftieth of the AUC scale
+//	partial ROC ratio   0.05   a twentieth of the ratio's null value 1
+//	omission, area      0.05   one test point in twenty
+//	Boyce index         0.10   a twentieth of its -1..1 range
+const (
+	DefaultToleranceAUC        = 0.02
+	DefaultTolerancePartialROC = 0.05
+	DefaultToleranceOmission   = 0.05
+	DefaultToleranceBoyce      = 0.10
+)
 
 // Input is one input file and its SHA-256 checksum.
 type Input struct {
-	Role   string `json:"role"` // "model:NAME", "occurrences", "region", "ecoregions", "extra"
+	Role   string `json:"role"` // "model:NAME", "null:NAME", "occurrences", "region", "ecoregions", "extra"
 	Path   string `json:"path"`
 	SHA256 string `json:"sha256"`
 }
@@ -77,10 +123,33 @@ type Grid struct {
 	CellAreaNote string     `json:"cell_area_method"`
 }
 
-// Model is one suitability raster.
+// Model roles and null kinds (Model.Role, Model.NullKind).
+const (
+	// RoleModel is a suitability model the study evaluates.
+	RoleModel = "model"
+	// RoleNull is a reference surface scored like a model on the same
+	// extents and test points, shown beside the models and never ranked.
+	RoleNull = "null"
+	// NullDistance is the distance-only null: minus the geodesic distance
+	// from each cell's centre to the nearest training point (Hijmans 2012,
+	// Ecology 93:679-688), computed by areasweep.
+	NullDistance = "distance_to_training"
+	// NullRaster is a raster the user marked as a null (--null).
+	NullRaster = "raster"
+	// DistanceNullName is the model name of the distance-only null.
+	DistanceNullName = "distance_null"
+)
+
+// Model is one suitability raster, or a null scored like one.
 type Model struct {
 	Name string `json:"name"`
+	// Path is the raster's path; empty for the distance-only null, which is
+	// computed.
 	Path string `json:"path"`
+	// Role is RoleModel or RoleNull.
+	Role string `json:"role"`
+	// NullKind is NullDistance or NullRaster for a null, empty for a model.
+	NullKind string `json:"null_kind,omitempty"`
 	// ValueMin and ValueMax are the smallest and largest valid values seen in
 	// the pass over the whole raster.
 	ValueMin float64 `json:"value_min"`
@@ -130,6 +199,41 @@ type Extent struct {
 	// Chain names the nested chain this member belongs to (e.g. "region"),
 	// ordered by area; empty when the member is in no chain.
 	Chain string `json:"chain,omitempty"`
+	// SortingBias compares the test points' distances to the nearest
+	// training point with the extent's cells' (Hijmans 2012); absent when
+	// the distance-only null was not computed.
+	SortingBias *SortingBias `json:"sorting_bias,omitempty"`
+}
+
+// SortingBias is the spatial sorting bias of one extent (Hijmans 2012,
+// Ecology 93:679-688): with t_i the geodesic distance from test point i
+// inside the extent to the nearest training point and d_c that from the
+// centre of cell c of the extent, area-weighted by w_c,
+//
+//	ratio_mean   = mean_i t_i / (sum_c w_c d_c / sum_c w_c)
+//	ratio_median = median_i t_i / weighted median_c d_c
+//
+// Values well below 1 mean the test points lie nearer the training points
+// than the extent's background does: distance alone separates them. It is a
+// description of the data, not a test.
+type SortingBias struct {
+	// Defined is false when the extent holds no test point or no area;
+	// Reason then says which, and the numbers are 0.
+	Defined bool   `json:"defined"`
+	Reason  string `json:"reason,omitempty"`
+	// TestPoints is the number of test points inside the extent.
+	TestPoints int `json:"test_points"`
+	// TestMeanKm and TestMedianKm summarise t_i (the median of an even
+	// count is the mean of the middle two).
+	TestMeanKm   float64 `json:"test_mean_km"`
+	TestMedianKm float64 `json:"test_median_km"`
+	// BackgroundMeanKm is exact but for rounding each d_c to the millimetre;
+	// BackgroundMedianKm is read from bins of relative width 0.001 with
+	// linear interpolation inside the bin, so within 0.1%.
+	BackgroundMeanKm   float64 `json:"background_mean_km"`
+	BackgroundMedianKm float64 `json:"background_median_km"`
+	RatioMean          float64 `json:"ratio_mean"`
+	RatioMedian        float64 `json:"ratio_median"`
 }
 
 // Score holds every metric of one model on one extent.
@@ -150,9 +254,26 @@ type Score struct {
 	AUC           float64 `json:"auc"`
 	AUCUnweighted float64 `json:"auc_unweighted"`
 	AUCTrain      float64 `json:"auc_train"`
-	// AUCBootSD is the standard deviation of the test AUC across the
-	// bootstrap resamples used for partial ROC.
+	// AUCSE is the standard error of AUC from the test points' placements,
+	// the extent's cells being the complete population (the presence
+	// component of DeLong et al. 1988); 0 with fewer than 2 test points.
+	AUCSE float64 `json:"auc_se"`
+	// AUCUnweightedSEDeLong is the square root of DeLong's full variance of
+	// AUCUnweighted, for readers who treat the cells as a sample (each
+	// counted once, unweighted).
+	AUCUnweightedSEDeLong float64 `json:"auc_unweighted_se_delong"`
+	// AUCBootSD is the standard deviation of the test AUC across the run's
+	// full-size paired resamples of the test points, restricted to this
+	// extent's test points. It estimates the same quantity as AUCSE.
 	AUCBootSD float64 `json:"auc_boot_sd"`
+	// TestPointIDs lists the ids (Point.ID) of the test points scored on
+	// this extent; Placements and PlacementsUnweighted hold, in the same
+	// order, each one's placement: the share of the extent's area (of its
+	// cells) scoring below the point plus half the share scoring the same.
+	// AUC is the mean of Placements.
+	TestPointIDs         []int     `json:"test_point_ids"`
+	Placements           []float64 `json:"placements"`
+	PlacementsUnweighted []float64 `json:"placements_unweighted"`
 
 	PartialROC []PartialROC `json:"partial_roc"`
 	Thresholds []Threshold  `json:"thresholds"`
@@ -160,16 +281,35 @@ type Score struct {
 }
 
 // PartialROC is the partial ROC result for one allowable omission E.
+// RatioMean, RatioSD, CILow, CIHigh and PValue come from the published
+// half-size bootstrap (Peterson et al. 2008) and describe the ratio's own
+// uncertainty; differences between extents or models use the paired
+// full-size resamples (Results.Paired).
 type PartialROC struct {
-	E          float64 `json:"e"`
-	Ratio      float64 `json:"ratio"`
-	RatioMean  float64 `json:"ratio_mean"`
-	RatioSD    float64 `json:"ratio_sd"`
-	CILow      float64 `json:"ci_low"`
-	CIHigh     float64 `json:"ci_high"`
-	PValue     float64 `json:"p_value"`
-	Iterations int     `json:"iterations"`
-	NotFormed  int     `json:"iterations_not_formed"`
+	E float64 `json:"e"`
+	// Defined is false when the full-set ratio is undefined; Reason says
+	// why (the curve reaches 1-E only at x = 1, or the crossing falls among
+	// test points tied at one value).
+	Defined bool   `json:"defined"`
+	Reason  string `json:"undefined_reason,omitempty"`
+	// XE is the share of area where the curve first reaches 1-E
+	// (interpolated along the crossing segment).
+	XE float64 `json:"x_e"`
+	// TiedAtCrossing, DiscreteDefined, DiscreteXE and DiscreteRatio: for a
+	// tie crossing, the number of tied test points and the reading at
+	// thresholds only (x_E = area at or above the tied value).
+	TiedAtCrossing  int     `json:"tied_at_crossing"`
+	DiscreteDefined bool    `json:"discrete_defined"`
+	DiscreteXE      float64 `json:"discrete_x_e"`
+	DiscreteRatio   float64 `json:"discrete_ratio"`
+	Ratio           float64 `json:"ratio"`
+	RatioMean       float64 `json:"ratio_mean"`
+	RatioSD         float64 `json:"ratio_sd"`
+	CILow           float64 `json:"ci_low"`
+	CIHigh          float64 `json:"ci_high"`
+	PValue          float64 `json:"p_value"`
+	Iterations      int     `json:"iterations"`
+	NotFormed       int     `json:"iterations_not_formed"`
 }
 
 // Threshold is a threshold-based omission test.
@@ -246,6 +386,75 @@ type Preview struct {
 	Masks    []string   `json:"masks"`
 }
 
+// Paired is one paired difference A - B on the test points both sides
+// share: two extents of one model (Kind "extent": Extent minus
+// OtherExtent, the base extent), two models on one extent (Kind "model":
+// Model minus OtherModel) or a model and a null on one extent (Kind
+// PairedKindNull: Model minus the null OtherModel).
+//
+// Method "placements": AUC differences from per-point placements, SE =
+// sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a normal 95% interval.
+// Method "paired_resamples": the other scores, over the run's full-size
+// paired resamples restricted to the common points; SE is the SD of the
+// resampled differences and the interval their 2.5 and 97.5 percentiles.
+type Paired struct {
+	// Metric is a MetricInfo key ("auc", "partial_roc_e0.05", ...).
+	Metric      string `json:"metric"`
+	Kind        string `json:"kind"`
+	Model       string `json:"model"`
+	Extent      string `json:"extent"`
+	OtherModel  string `json:"other_model"`
+	OtherExtent string `json:"other_extent"`
+	// CommonPoints is the number of test points on both sides.
+	CommonPoints int    `json:"common_points"`
+	Method       string `json:"method"`
+	// Defined is false when the score cannot be formed on the common
+	// points or too few points or resamples exist.
+	Defined bool `json:"defined"`
+	// A and B are the two scores on the common points; Diff = A - B.
+	A    float64 `json:"a"`
+	B    float64 `json:"b"`
+	Diff float64 `json:"diff"`
+	SE   float64 `json:"se"`
+	Low  float64 `json:"ci_low"`
+	High float64 `json:"ci_high"`
+	// Resamples and NotFormed count the paired resamples drawn and those
+	// that could not form the score (paired_resamples only).
+	Resamples int `json:"resamples"`
+	NotFormed int `json:"resamples_not_formed"`
+	// TestSetShift is how much the change of test set moved the score:
+	// (A on its own points - B on its own points) - Diff.
+	TestSetShift float64 `json:"test_set_shift"`
+}
+
+// MetricKeyPartialROC, MetricKeyOmission: the MetricInfo keys of a partial
+// ROC ratio at E and of an omission rate at a threshold (value used for
+// "fixed" thresholds only).
+func MetricKeyPartialROC(e float64) string { return "partial_roc_e" + fmtG(e) }
+
+// MetricKeyOmission returns the MetricInfo key of the omission rate at a
+// named threshold; value distinguishes "fixed" thresholds.
+func MetricKeyOmission(name string, value float64) string {
+	if name == "fixed" {
+		return "omission_fixed_" + fmtG(value)
+	}
+	return "omission_" + name
+}
+
+// BaseExtent returns the extent differences are taken from: "base" when
+// it is among ids, else the first of ids ("" when ids is empty).
+func BaseExtent(ids []string) string {
+	for _, id := range ids {
+		if id == "base" {
+			return id
+		}
+	}
+	if len(ids) == 0 {
+		return ""
+	}
+	return ids[0]
+}
+
 // Load reads a results.json file.
 func Load(path string) (*Results, error) {
 	data, err := os.ReadFile(path)
@@ -273,3 +482,6 @@ func (r *Results) Encode() ([]byte, error) {
 	}
 	return buf.Bytes(), nil
 }
+
+// IsNull reports whether m is a null rather than a model under evaluation.
+func (m Model) IsNull() bool { return m.Role == RoleNull }

@@ -11,22 +11,14 @@ import (
 // our own choices (marked "common practice" where they follow habit), kept
 // here so that the report and methods text can quote them.
 const (
-	// RobustBootFactor: a metric with a bootstrap SD is "robust" for a model
-	// when its range across extents is at most RobustBootFactor times the
-	// median within-extent bootstrap SD (our choice: about the spread two
-	// resamples of the same extent would show).
-	RobustBootFactor = 2.0
-	// RobustAbsRange: a metric without a bootstrap SD (or with none
-	// available) is "robust" when its range across extents is at most this
-	// (our choice; 0.05 is a common-practice size for a "meaningful" AUC
-	// difference and is applied to every bounded metric alike).
-	RobustAbsRange = 0.05
 	// FloorShareFlag: a model whose minimum value covers at least this share
 	// of the valid area is flagged as truncated (our choice).
 	FloorShareFlag = 0.20
-	// TailJumpFlag: a ROC curve whose last segment (at the lowest threshold)
-	// spans more than this on the area axis is flagged as having a long
-	// straight tail (our choice).
+	// TailJumpFlag: a ROC curve whose last segment is a tie (test points
+	// share the lowest value with many cells, so the segment starts below
+	// y = 1) spanning more than this on the area axis is flagged (our
+	// choice). A flat run at y = 1 is never flagged: it is background
+	// below every test point, which a good model shows on a large extent.
 	TailJumpFlag = 0.20
 	// NearCells: test points within NearCells cell widths of a training point
 	// count as "near" (our choice).
@@ -57,12 +49,32 @@ type Sensitivity struct {
 	SkippedExtents []SkippedExtent `json:"skipped_extents"`
 	// Unscored lists the scores with Scored=false on usable extents.
 	Unscored []UnscoredScore `json:"unscored_scores"`
-	// Spreads holds one entry per metric and model.
+	// BaseExtent is the extent every paired difference is taken from
+	// ("base" when scored, else the first scored extent).
+	BaseExtent string `json:"base_extent"`
+	// TestPoints lists the number of test points per scored extent (in
+	// ScoredExtents order), and TestPointsVary whether they differ.
+	TestPoints     []int `json:"test_points"`
+	TestPointsVary bool  `json:"test_points_vary"`
+	// Spreads holds one description per metric and model.
 	Spreads []Spread `json:"spreads"`
-	// Verdicts holds one robustness verdict per metric.
+	// ModelVerdicts holds, per metric and model, the equivalence verdict
+	// with the paired difference of every extent from the base.
+	ModelVerdicts []ModelVerdict `json:"model_verdicts"`
+	// Verdicts sums up ModelVerdicts per metric.
 	Verdicts []Verdict `json:"verdicts"`
-	// Decompositions holds, per metric, the two-way decomposition and the
-	// model rankings; empty with fewer than two models.
+	// Rankings compares every pair of models per metric by their paired
+	// differences on each extent; empty with fewer than two models.
+	Rankings []ModelRanking `json:"rankings"`
+	// AboveNull compares every model with every null, per metric (AUC and
+	// the partial ROC ratio at each E) and scored extent: the paired
+	// difference model minus null with its 95% interval. Empty without
+	// nulls.
+	AboveNull []AboveNull `json:"above_null"`
+	// Decompositions describes, per metric, how the spread of the models x
+	// extents table splits (a property of the chosen family) and how far
+	// the extents agree on the order of the models; empty with fewer than
+	// two models.
 	Decompositions []Decomposition `json:"decompositions"`
 	// Chains summarises the nested rings per chain and model.
 	Chains []ChainSummary `json:"chains"`
@@ -97,9 +109,9 @@ type MetricInfo struct {
 	// is our choice: at a threshold that keeps every training point, a
 	// smaller predicted area is the more specific model).
 	HigherIsBetter bool `json:"higher_is_better"`
-	// BootstrapSD names the Score field holding the within-extent bootstrap
-	// SD ("auc_boot_sd", "ratio_sd"), empty when there is none.
-	BootstrapSD string `json:"bootstrap_sd,omitempty"`
+	// Tolerance is the difference treated as negligible in the verdicts
+	// (Settings).
+	Tolerance float64 `json:"tolerance"`
 }
 
 // SkippedExtent is an extent left out of the analysis.
@@ -117,16 +129,13 @@ type UnscoredScore struct {
 	Reason string `json:"reason"`
 }
 
-// Spread describes one metric of one model across the scored extents.
-//
-// SD is the sample standard deviation (divisor n-1): the extents are
-// treated as a sample of the extents one could reasonably have chosen.
+// Spread describes one metric of one model across the scored extents. It
+// is a description of the chosen family, not an inference: the extents are
+// nested or overlapping, share their test points and were chosen by the
+// user, so they are not a sample.
 //
 //	range = max - min
 //	SD    = sqrt( sum (x_e - mean)^2 / (n-1) )
-//	BootSDMedian = median over extents of the within-extent bootstrap SD
-//	               (Score.AUCBootSD for AUC, PartialROC.RatioSD for partial ROC)
-//	RangeOverBootSD = range / BootSDMedian
 type Spread struct {
 	Metric string `json:"metric"`
 	Model  string `json:"model"`
@@ -135,9 +144,11 @@ type Spread struct {
 	Extents  []string  `json:"extents"`
 	AreasKm2 []float64 `json:"areas_km2"`
 	Values   []float64 `json:"values"`
-	// BootSD holds the within-extent bootstrap SD per extent (0 when the
-	// metric has none); BootLow/BootHigh the interval drawn in the figure:
-	// the partial ROC bootstrap CI, or value -+ bootstrap SD for AUC.
+	// BootSD holds the per-extent uncertainty drawn in the figure (0 when
+	// the metric has none): for AUC the SD over the full-size paired
+	// resamples (Score.AUCBootSD), for partial ROC the SD of the published
+	// half-size bootstrap. BootLow/BootHigh: value -+ SD for AUC, the
+	// published bootstrap interval for partial ROC.
 	BootSD   []float64 `json:"boot_sd,omitempty"`
 	BootLow  []float64 `json:"boot_low,omitempty"`
 	BootHigh []float64 `json:"boot_high,omitempty"`
@@ -150,55 +161,111 @@ type Spread struct {
 	Mean      float64 `json:"mean"`
 	SD        float64 `json:"sd"`
 	SDDefined bool    `json:"sd_defined"`
-
-	BootSDMedian           float64 `json:"boot_sd_median"`
-	BootSDDefined          bool    `json:"boot_sd_defined"`
-	RangeOverBootSD        float64 `json:"range_over_boot_sd"`
-	RangeOverBootSDDefined bool    `json:"range_over_boot_sd_defined"`
-
-	Slope Slope `json:"slope"`
-
-	// Verdict is "robust", "extent-sensitive" or "undetermined" (n < 2);
-	// Rule names the rule applied and Limit its cut-off for this model.
-	Verdict string  `json:"verdict"`
-	Rule    string  `json:"rule"`
-	Limit   float64 `json:"limit"`
 }
 
-// Slope is the ordinary least-squares slope of a metric against
-// log2(extent area in km2): the change per doubling of the area.
+// Slope is the ordinary least-squares slope of AUC against log2(extent area
+// in km2) along one nested chain: the change per doubling of the area. It
+// is a description of the chain; no interval is given, because the members
+// of a chain are nested and share their test points.
 //
-//	y_e = a + b log2(A_e),  b = Sxy/Sxx,  SE(b) = sqrt(SSE/(n-2)/Sxx)
-//	95% CI: b -+ t(0.975; n-2) SE(b)  (Student's t quantile)
-//	r^2 = 1 - SSE/Syy
+//	y_e = a + b log2(A_e),  b = Sxy/Sxx,  r^2 = 1 - SSE/Syy
 type Slope struct {
 	Defined     bool    `json:"defined"`
 	N           int     `json:"n"`
 	PerDoubling float64 `json:"per_doubling"`
 	Intercept   float64 `json:"intercept"`
-	StdErr      float64 `json:"std_err"`
-	TQuantile   float64 `json:"t_quantile"`
-	CILow       float64 `json:"ci_low"`
-	CIHigh      float64 `json:"ci_high"`
-	CIDefined   bool    `json:"ci_defined"`
 	R2          float64 `json:"r2"`
 	R2Defined   bool    `json:"r2_defined"`
 }
 
-// Verdict is the robustness verdict for one metric over all models: robust
-// when every model with n >= 2 is robust, extent-sensitive when any is.
-type Verdict struct {
-	Metric  string `json:"metric"`
-	Label   string `json:"label"`
-	Verdict string `json:"verdict"`
-	// Sensitive lists the models for which the metric is extent-sensitive.
-	Sensitive []string `json:"sensitive_models"`
+// ExtentDifference is the paired difference of one metric between one
+// extent and the base extent for one model (from Results.Paired, or exact
+// for the predicted area, which has no test-point sampling error).
+type ExtentDifference struct {
+	Extent string `json:"extent"`
+	// Value is the metric on the extent's own test points.
+	Value        float64 `json:"value"`
+	TestPoints   int     `json:"test_points"`
+	CommonPoints int     `json:"common_points"`
+	Defined      bool    `json:"defined"`
+	Diff         float64 `json:"diff"`
+	Low          float64 `json:"ci_low"`
+	High         float64 `json:"ci_high"`
+	// Method is "placements", "paired_resamples" or "exact".
+	Method string `json:"method"`
+	// TestSetShift is how much the change of test set moved the score
+	// beyond Diff (0 when both extents hold the same test points).
+	TestSetShift float64 `json:"test_set_shift"`
+	// Position of the interval against -tolerance..+tolerance: "inside",
+	// "outside" (wholly beyond) or "overlapping".
+	Position string `json:"position"`
+}
+
+// ModelVerdict is the equivalence judgement of one metric for one model
+// against the tolerance T (our own default or the user's):
+//
+//	robust           every paired difference from the base extent has its
+//	                 95% interval inside -T..+T
+//	extent-sensitive at least one interval lies wholly outside -T..+T
+//	undetermined     otherwise: too few test points to tell (Largest names
+//	                 the largest difference and its interval), or no
+//	                 difference could be formed
+type ModelVerdict struct {
+	Metric    string  `json:"metric"`
+	Label     string  `json:"label"`
+	Model     string  `json:"model"`
+	Tolerance float64 `json:"tolerance"`
+	Verdict   string  `json:"verdict"`
+	Base      string  `json:"base_extent"`
+	BaseValue float64 `json:"base_value"`
+	// BaseDefined is false when the metric is undefined on the base extent.
+	BaseDefined bool               `json:"base_defined"`
+	Diffs       []ExtentDifference `json:"differences"`
+	// Largest is the index in Diffs of the defined difference with the
+	// largest |Diff| (-1 when none).
+	Largest int `json:"largest"`
+	// Undefined lists extents where the difference could not be formed.
+	Undefined []string `json:"undefined_on"`
 	Sentence  string   `json:"sentence"`
 }
 
-// Decomposition splits the spread of one metric over a models x extents
-// table (only extents scored for every model) into main effects and the
-// non-additive part. With one value per cell there is no replicate, so the
+// Verdict sums up the ModelVerdicts of one metric: extent-sensitive when
+// any model's is, robust when every model's is, undetermined otherwise.
+type Verdict struct {
+	Metric    string  `json:"metric"`
+	Label     string  `json:"label"`
+	Tolerance float64 `json:"tolerance"`
+	Verdict   string  `json:"verdict"`
+	// Sensitive, Robust and Undetermined list the models by verdict.
+	Sensitive    []string `json:"sensitive_models"`
+	Robust       []string `json:"robust_models"`
+	Undetermined []string `json:"undetermined_models"`
+	Sentence     string   `json:"sentence"`
+}
+
+// ModelRanking judges two models on one metric by their paired
+// differences (Model minus Other) on each extent: "beyond noise" means the
+// 95% interval excludes 0.
+type ModelRanking struct {
+	Metric string `json:"metric"`
+	Model  string `json:"model"`
+	Other  string `json:"other"`
+	// Extents is the number of extents with a defined difference; Better
+	// and Worse count those where Model is better / worse than Other beyond
+	// noise (in the metric's better direction); the rest are within noise.
+	Extents     int                `json:"extents"`
+	Better      int                `json:"better"`
+	Worse       int                `json:"worse"`
+	WithinNoise int                `json:"within_noise"`
+	Diffs       []ExtentDifference `json:"differences"`
+	Sentence    string             `json:"sentence"`
+}
+
+// Decomposition describes the spread of one metric over a models x extents
+// table (only extents scored for every model) by splitting it into main
+// effects and the non-additive part. The shares are a property of the
+// chosen family of extents (another family gives other shares), so they
+// describe this table and are not a finding about models in general. With one value per cell there is no replicate, so the
 // residual is the model x extent interaction plus any noise (Tukey 1949,
 // Biometrics 5:232, discusses exactly this case):
 //
@@ -233,12 +300,11 @@ type Decomposition struct {
 	Rankings        []ExtentRanking `json:"rankings"`
 	BaseExtent      string          `json:"base_extent"`
 	DiffersFromBase []string        `json:"differs_from_base"`
-	KendallW        float64         `json:"kendall_w"`
-	KendallWDefined bool            `json:"kendall_w_defined"`
-	ChiSquare       float64         `json:"chi_square"`
-	DF              int             `json:"df"`
-	PValue          float64         `json:"p_value"`
-	Sentence        string          `json:"sentence"`
+	// KendallW is a description of agreement; no chi-square p-value is
+	// given because the extents are not independent judges.
+	KendallW        float64 `json:"kendall_w"`
+	KendallWDefined bool    `json:"kendall_w_defined"`
+	Sentence        string  `json:"sentence"`
 }
 
 // ExtentRanking is the ranking of the models on one extent.
@@ -282,7 +348,9 @@ type ChainSummary struct {
 	Steps          []ChainStep `json:"steps"`
 	// Largest is the index in Steps of the step with the largest |share|
 	// (-1 when shares are undefined).
-	Largest  int    `json:"largest"`
+	Largest int `json:"largest"`
+	// Slope describes AUC against log2(area) over the chain's members.
+	Slope    Slope  `json:"slope"`
 	Sentence string `json:"sentence"`
 }
 
@@ -304,14 +372,15 @@ type ChainStep struct {
 }
 
 // TruncationCheck flags a model whose predictions look truncated: a floor
-// value covering a large share of the area, or ROC curves ending in a long
-// straight segment (many cells tied at the lowest value).
+// value covering a large share of the area, or ROC curves whose last
+// segment is a long tie starting below y = 1 (test points share the lowest
+// value with many cells).
 type TruncationCheck struct {
 	Model      string  `json:"model"`
 	FloorShare float64 `json:"floor_share"`
 	FloorFlag  bool    `json:"floor_flag"`
-	// Tails lists the extents whose curve's last segment spans more than
-	// TailJumpFlag on the area axis.
+	// Tails lists the extents whose curve's last segment is a tie that
+	// starts below y = 1 and spans more than TailJumpFlag on the area axis.
 	Tails    []TailJump `json:"tails"`
 	MaxJump  float64    `json:"max_jump"`
 	Flag     bool       `json:"flag"`
@@ -379,7 +448,10 @@ func Analyze(r *Results) error {
 		SkippedExtents: []SkippedExtent{},
 		Unscored:       []UnscoredScore{},
 		Spreads:        []Spread{},
+		ModelVerdicts:  []ModelVerdict{},
 		Verdicts:       []Verdict{},
+		Rankings:       []ModelRanking{},
+		AboveNull:      []AboveNull{},
 		Decompositions: []Decomposition{},
 		Chains:         []ChainSummary{},
 		Truncation:     []TruncationCheck{},
@@ -387,19 +459,29 @@ func Analyze(r *Results) error {
 		Warnings:       append([]string{}, a.warnings...),
 	}
 	s.ScoredExtents, s.SkippedExtents, s.Unscored = a.extentUse()
+	s.BaseExtent = BaseExtent(s.ScoredExtents)
+	a.base = s.BaseExtent
+	s.TestPoints, s.TestPointsVary = a.testPointCounts(s.ScoredExtents)
 	for _, m := range a.metrics {
 		for _, model := range a.models {
 			s.Spreads = append(s.Spreads, a.spread(m, model))
 		}
 	}
 	for _, m := range a.metrics {
-		s.Verdicts = append(s.Verdicts, verdictFor(m, s.Spreads))
+		var mv []ModelVerdict
+		for _, model := range a.models {
+			mv = append(mv, a.modelVerdict(m, model))
+		}
+		s.ModelVerdicts = append(s.ModelVerdicts, mv...)
+		s.Verdicts = append(s.Verdicts, verdictFor(m, mv))
 	}
 	if len(a.models) >= 2 {
 		for _, m := range a.metrics {
+			s.Rankings = append(s.Rankings, a.rankings(m)...)
 			s.Decompositions = append(s.Decompositions, a.decompose(m))
 		}
 	}
+	s.AboveNull = a.aboveNull(s.ScoredExtents)
 	chains, w := a.chains()
 	s.Chains = chains
 	s.Warnings = append(s.Warnings, w...)
@@ -428,11 +510,18 @@ type analysis struct {
 	extIndex map[string]int
 	scores   map[[2]string]*Score // (model, extent) -> first score
 	warnings []string
+	base     string // Sensitivity.BaseExtent
 }
 
 func newAnalysis(r *Results) *analysis {
 	a := &analysis{r: r, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
 	seenModel := map[string]bool{}
+	// Nulls are references, not models: they never enter the analysis.
+	for _, m := range r.Models {
+		if m.IsNull() {
+			seenModel[m.Name] = true
+		}
+	}
 	for _, m := range r.Models {
 		if !seenModel[m.Name] {
 			seenModel[m.Name] = true
@@ -449,6 +538,9 @@ func newAnalysis(r *Results) *analysis {
 	}
 	for i := range r.Scores {
 		sc := &r.Scores[i]
+		if isNull(r, sc.Model) {
+			continue
+		}
 		if !allExt[sc.Extent] {
 			a.warnings = append(a.warnings, fmt.Sprintf("score of model %s names extent %q, which is not in the extent family: ignored", sc.Model, sc.Extent))
 			continue
@@ -533,11 +625,17 @@ func checkFinite(r *Results) error {
 	}
 	for _, s := range r.Scores {
 		where := fmt.Sprintf("report: score %s on %s", s.Model, s.Extent)
-		if bad(s.AUC) || bad(s.AUCUnweighted) || bad(s.AUCTrain) || bad(s.AUCBootSD) || bad(s.AreaKm2) {
+		if bad(s.AUC) || bad(s.AUCUnweighted) || bad(s.AUCTrain) || bad(s.AUCBootSD) || bad(s.AUCSE) || bad(s.AUCUnweightedSEDeLong) || bad(s.AreaKm2) {
 			return fmt.Errorf("%s: an AUC field is not finite", where)
 		}
+		for _, v := range append(append([]float64{}, s.Placements...), s.PlacementsUnweighted...) {
+			if bad(v) {
+				return fmt.Errorf("%s: a placement is not finite", where)
+			}
+		}
 		for _, p := range s.PartialROC {
-			if bad(p.E) || bad(p.Ratio) || bad(p.RatioMean) || bad(p.RatioSD) || bad(p.CILow) || bad(p.CIHigh) || bad(p.PValue) {
+			if bad(p.E) || bad(p.Ratio) || bad(p.RatioMean) || bad(p.RatioSD) || bad(p.CILow) || bad(p.CIHigh) || bad(p.PValue) ||
+				bad(p.XE) || bad(p.DiscreteXE) || bad(p.DiscreteRatio) {
 				return fmt.Errorf("%s: partial ROC at E=%g is not finite", where, p.E)
 			}
 		}
@@ -548,6 +646,11 @@ func checkFinite(r *Results) error {
 		}
 		if s.Boyce != nil && bad(s.Boyce.Index) {
 			return fmt.Errorf("%s: Boyce index is not finite", where)
+		}
+	}
+	for _, p := range r.Paired {
+		if bad(p.A) || bad(p.B) || bad(p.Diff) || bad(p.SE) || bad(p.Low) || bad(p.High) || bad(p.TestSetShift) {
+			return fmt.Errorf("report: paired %s of %s/%s against %s/%s is not finite", p.Metric, p.Model, p.Extent, p.OtherModel, p.OtherExtent)
 		}
 	}
 	for _, g := range r.Rings {
@@ -568,4 +671,14 @@ func checkFinite(r *Results) error {
 		}
 	}
 	return nil
+}
+
+// isNull reports whether the model named name is a null.
+func isNull(r *Results, name string) bool {
+	for _, m := range r.Models {
+		if m.Name == name {
+			return m.IsNull()
+		}
+	}
+	return false
 }

@@ -1,7 +1,6 @@
 package report
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 	"strings"
@@ -16,11 +15,13 @@ var thresholdLabels = map[string]string{
 
 func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// buildMetrics lists the metrics present in r in report order.
+// buildMetrics lists the metrics present in r in report order, each with
+// its tolerance from the settings.
 func buildMetrics(r *Results) []MetricInfo {
+	st := r.Settings
 	ms := []MetricInfo{
-		{Key: "auc", Label: "AUC", Kind: "auc", HigherIsBetter: true, BootstrapSD: "auc_boot_sd"},
-		{Key: "auc_unweighted", Label: "AUC (cells unweighted)", Kind: "auc_unweighted", HigherIsBetter: true},
+		{Key: "auc", Label: "AUC", Kind: "auc", HigherIsBetter: true, Tolerance: st.ToleranceAUC},
+		{Key: "auc_unweighted", Label: "AUC (cells unweighted)", Kind: "auc_unweighted", HigherIsBetter: true, Tolerance: st.ToleranceAUC},
 	}
 	es := append([]float64(nil), r.Settings.E...)
 	seenE := map[float64]bool{}
@@ -36,8 +37,8 @@ func buildMetrics(r *Results) []MetricInfo {
 		}
 	}
 	for _, e := range es {
-		ms = append(ms, MetricInfo{Key: "partial_roc_e" + fmtG(e), Label: "partial ROC ratio, E = " + fmtG(e),
-			Kind: "partial_roc", E: e, HigherIsBetter: true, BootstrapSD: "ratio_sd"})
+		ms = append(ms, MetricInfo{Key: MetricKeyPartialROC(e), Label: "partial ROC ratio, E = " + fmtG(e),
+			Kind: "partial_roc", E: e, HigherIsBetter: true, Tolerance: st.TolerancePartialROC})
 	}
 	seenT := map[string]bool{}
 	hasMTP := false
@@ -46,11 +47,10 @@ func buildMetrics(r *Results) []MetricInfo {
 			continue
 		}
 		for _, t := range s.Thresholds {
-			key := "omission_" + t.Name
+			key := MetricKeyOmission(t.Name, t.Value)
 			label := "omission at " + thresholdLabel(t.Name)
-			mi := MetricInfo{Kind: "omission", Threshold: t.Name}
+			mi := MetricInfo{Kind: "omission", Threshold: t.Name, Tolerance: st.ToleranceOmission}
 			if t.Name == "fixed" {
-				key += "_" + fmtG(t.Value)
 				label += " " + fmtG(t.Value)
 				mi.ThresholdValue = t.Value
 			}
@@ -67,11 +67,11 @@ func buildMetrics(r *Results) []MetricInfo {
 	}
 	if hasMTP {
 		ms = append(ms, MetricInfo{Key: "area_fraction_mtp", Label: "predicted area at minimum training presence",
-			Kind: "area_fraction", Threshold: "minimum_training_presence"})
+			Kind: "area_fraction", Threshold: "minimum_training_presence", Tolerance: st.ToleranceOmission})
 	}
 	for _, s := range r.Scores {
 		if s.Scored && s.Boyce != nil {
-			ms = append(ms, MetricInfo{Key: "boyce", Label: "Boyce index", Kind: "boyce", HigherIsBetter: true})
+			ms = append(ms, MetricInfo{Key: "boyce", Label: "Boyce index", Kind: "boyce", HigherIsBetter: true, Tolerance: st.ToleranceBoyce})
 			break
 		}
 	}
@@ -86,12 +86,12 @@ func thresholdLabel(name string) string {
 }
 
 // metricValue extracts metric m from s. ok is false when the score does
-// not carry the metric; hasBoot tells whether boot holds a bootstrap SD and
-// lo/hi the interval to draw.
-func metricValue(m MetricInfo, s *Score, iterations int) (v float64, ok bool, boot, lo, hi float64, hasBoot bool) {
+// not carry the metric (an undefined partial ROC ratio included); hasBoot
+// tells whether boot holds a per-extent SD and lo/hi the interval to draw.
+func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float64, hasBoot bool) {
 	switch m.Kind {
 	case "auc":
-		hasBoot = iterations >= 2
+		hasBoot = s.AUCBootSD > 0
 		return s.AUC, true, s.AUCBootSD, s.AUC - s.AUCBootSD, s.AUC + s.AUCBootSD, hasBoot
 	case "auc_unweighted":
 		return s.AUCUnweighted, true, 0, 0, 0, false
@@ -100,7 +100,7 @@ func metricValue(m MetricInfo, s *Score, iterations int) (v float64, ok bool, bo
 			if math.Abs(p.E-m.E) > 1e-12 {
 				continue
 			}
-			if p.Iterations > 0 && p.NotFormed >= p.Iterations {
+			if !p.Defined {
 				return 0, false, 0, 0, 0, false
 			}
 			hasBoot = p.Iterations-p.NotFormed >= 2
@@ -127,17 +127,16 @@ func metricValue(m MetricInfo, s *Score, iterations int) (v float64, ok bool, bo
 	return 0, false, 0, 0, 0, false
 }
 
-// spread computes the Spread of metric m for model across usable extents.
+// spread describes metric m for model across usable extents.
 func (a *analysis) spread(m MetricInfo, model string) Spread {
 	sp := Spread{Metric: m.Key, Model: model, Extents: []string{}, AreasKm2: []float64{}, Values: []float64{}}
-	var boots []float64
-	withBoot := m.BootstrapSD != ""
+	withBoot := m.Kind == "auc" || m.Kind == "partial_roc"
 	for _, e := range a.extents {
 		sc := a.score(model, e.ID)
 		if sc == nil {
 			continue
 		}
-		v, ok, b, lo, hi, hasBoot := metricValue(m, sc, a.r.Settings.Iterations)
+		v, ok, b, lo, hi, hasBoot := metricValue(m, sc)
 		if !ok {
 			continue
 		}
@@ -147,8 +146,6 @@ func (a *analysis) spread(m MetricInfo, model string) Spread {
 		if withBoot {
 			if !hasBoot {
 				b, lo, hi = 0, v, v
-			} else {
-				boots = append(boots, b)
 			}
 			sp.BootSD = append(sp.BootSD, b)
 			sp.BootLow = append(sp.BootLow, lo)
@@ -171,31 +168,11 @@ func (a *analysis) spread(m MetricInfo, model string) Spread {
 		sp.Mean = meanOf(sp.Values)
 	}
 	sp.SD, sp.SDDefined = sampleSD(sp.Values)
-	if med, ok := medianOf(boots); ok && med > 0 {
-		sp.BootSDMedian, sp.BootSDDefined = med, true
-		sp.RangeOverBootSD, sp.RangeOverBootSDDefined = sp.Range/med, true
-	}
-	sp.Slope = slopeOf(sp.AreasKm2, sp.Values)
-	switch {
-	case sp.BootSDDefined:
-		sp.Rule = fmt.Sprintf("range <= %g x median bootstrap SD", RobustBootFactor)
-		sp.Limit = RobustBootFactor * sp.BootSDMedian
-	default:
-		sp.Rule = fmt.Sprintf("range <= %g (our cut-off)", RobustAbsRange)
-		sp.Limit = RobustAbsRange
-	}
-	switch {
-	case sp.N < 2:
-		sp.Verdict = "undetermined"
-	case sp.Range <= sp.Limit:
-		sp.Verdict = "robust"
-	default:
-		sp.Verdict = "extent-sensitive"
-	}
 	return sp
 }
 
-// slopeOf regresses values on log2(area), ignoring non-positive areas.
+// slopeOf regresses values on log2(area), ignoring non-positive areas: a
+// description, with no interval.
 func slopeOf(areas, values []float64) Slope {
 	var x, y []float64
 	for i, a := range areas {
@@ -212,59 +189,7 @@ func slopeOf(areas, values []float64) Slope {
 	sl.Defined = true
 	sl.PerDoubling, sl.Intercept = f.b, f.a
 	sl.R2, sl.R2Defined = f.r2, f.r2Defined
-	if f.ciDefined {
-		sl.StdErr, sl.TQuantile = f.seB, f.t
-		sl.CILow, sl.CIHigh, sl.CIDefined = f.ciLo, f.ciHi, true
-	}
 	return sl
-}
-
-// verdictFor combines the spreads of metric m over models.
-func verdictFor(m MetricInfo, spreads []Spread) Verdict {
-	v := Verdict{Metric: m.Key, Label: m.Label, Verdict: "undetermined", Sensitive: []string{}}
-	var worst *Spread
-	worstRatio := -1.0
-	nDet := 0
-	for i := range spreads {
-		sp := &spreads[i]
-		if sp.Metric != m.Key || sp.Verdict == "undetermined" {
-			continue
-		}
-		nDet++
-		if sp.Verdict == "extent-sensitive" {
-			v.Sensitive = append(v.Sensitive, sp.Model)
-		}
-		ratio := sp.Range / sp.Limit
-		if ratio > worstRatio {
-			worstRatio, worst = ratio, sp
-		}
-	}
-	if nDet == 0 || worst == nil {
-		v.Sentence = fmt.Sprintf("%s: fewer than two scored extents for every model, so no verdict.", upperFirst(m.Label))
-		return v
-	}
-	noise := func(sp *Spread) string {
-		if sp.BootSDDefined {
-			return fmt.Sprintf("%.1f times its median bootstrap SD (%s)", sp.RangeOverBootSD, f3(sp.BootSDMedian))
-		}
-		return fmt.Sprintf("range %s against our cut-off of %g", f3(sp.Range), RobustAbsRange)
-	}
-	if len(v.Sensitive) == 0 {
-		v.Verdict = "robust"
-		if worst.BootSDDefined {
-			v.Sentence = fmt.Sprintf("%s is robust to the extent: for every model its range across extents stays within %g times the median bootstrap SD (widest: %s, %s–%s, %s).",
-				upperFirst(m.Label), RobustBootFactor, worst.Model, f3(worst.Min), f3(worst.Max), noise(worst))
-		} else {
-			v.Sentence = fmt.Sprintf("%s is robust to the extent: for every model it moves by at most %g across extents (widest: %s, %s–%s).",
-				upperFirst(m.Label), RobustAbsRange, worst.Model, f3(worst.Min), f3(worst.Max))
-		}
-		return v
-	}
-	v.Verdict = "extent-sensitive"
-	v.Sentence = fmt.Sprintf("%s is extent-sensitive: for model %s it ranges %s (%s) to %s (%s) across %d extents, %s; the choice of extent moves it more than %s.",
-		upperFirst(m.Label), worst.Model, f3(worst.Min), worst.MinExtent, f3(worst.Max), worst.MaxExtent, worst.N, noise(worst),
-		map[bool]string{true: "resampling the test points does", false: "our cut-off allows"}[worst.BootSDDefined])
-	return v
 }
 
 // f3 formats v with three decimals (no negative zero).

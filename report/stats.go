@@ -3,8 +3,6 @@ package report
 import (
 	"math"
 	"sort"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // meanOf returns the arithmetic mean of xs (0 for an empty slice).
@@ -70,25 +68,19 @@ func medianOf(xs []float64) (float64, bool) {
 
 // olsFit is an ordinary least-squares line y = a + b x.
 type olsFit struct {
-	n          int
-	a, b       float64
-	seB        float64
-	r2         float64
-	r2Defined  bool
-	t          float64
-	ciLo, ciHi float64
-	ciDefined  bool
+	n         int
+	a, b      float64
+	r2        float64
+	r2Defined bool
 }
 
 // ols fits y = a + b x by ordinary least squares (e.g. Draper & Smith 1998,
-// Applied Regression Analysis, ch. 1):
+// Applied Regression Analysis, ch. 1), as a description:
 //
 //	b = Sxy / Sxx,  a = mean(y) - b mean(x)
-//	SE(b) = sqrt( SSE / (n-2) / Sxx ),  SSE = sum (y - a - b x)^2
-//	r^2 = 1 - SSE / Syy
-//	95% CI of b: b -+ t(0.975; n-2) SE(b)
+//	r^2 = 1 - SSE / Syy,  SSE = sum (y - a - b x)^2
 //
-// It returns false when n < 2 or all x are equal. The CI needs n >= 3.
+// It returns false when n < 2 or all x are equal.
 func ols(x, y []float64) (olsFit, bool) {
 	n := len(x)
 	f := olsFit{n: n}
@@ -116,13 +108,6 @@ func ols(x, y []float64) (olsFit, bool) {
 	if syy > 0 {
 		f.r2 = 1 - sse/syy
 		f.r2Defined = true
-	}
-	if n >= 3 {
-		f.seB = math.Sqrt(sse / float64(n-2) / sxx)
-		f.t = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(n - 2)}.Quantile(0.975)
-		f.ciLo = f.b - f.t*f.seB
-		f.ciHi = f.b + f.t*f.seB
-		f.ciDefined = true
 	}
 	return f, true
 }
@@ -170,18 +155,19 @@ func averageRanks(xs []float64, higherBetter bool) ([]float64, float64) {
 //	S   = sum_i (R_i - mean R)^2
 //	W   = 12 S / ( m^2 (n^3 - n) - m sum_j T_j ),  T_j = sum (t^3 - t) over tie groups of judge j
 //
-// and its chi-square test, chi2 = m (n-1) W with n-1 degrees of freedom
-// (Legendre 2005, eq. 3). ranks[j][i] is the rank given by judge j to
-// object i; ties[j] is T_j. It returns false when W is undefined (m < 2,
-// n < 2, or every judge ties every object).
-func kendallW(ranks [][]float64, ties []float64) (w, chi2 float64, df int, p float64, ok bool) {
+// as a description of agreement only: its chi-square test assumes
+// independent judges, which nested extents sharing test points are not.
+// ranks[j][i] is the rank given by judge j to object i; ties[j] is T_j. It
+// returns false when W is undefined (m < 2, n < 2, or every judge ties
+// every object).
+func kendallW(ranks [][]float64, ties []float64) (w float64, ok bool) {
 	m := len(ranks)
 	if m < 2 {
-		return 0, 0, 0, 0, false
+		return 0, false
 	}
 	n := len(ranks[0])
 	if n < 2 {
-		return 0, 0, 0, 0, false
+		return 0, false
 	}
 	R := make([]float64, n)
 	for _, row := range ranks {
@@ -201,11 +187,7 @@ func kendallW(ranks [][]float64, ties []float64) (w, chi2 float64, df int, p flo
 	fm, fn := float64(m), float64(n)
 	den := fm*fm*(fn*fn*fn-fn) - fm*tsum
 	if den <= 0 {
-		return 0, 0, 0, 0, false
+		return 0, false
 	}
-	w = 12 * s / den
-	df = n - 1
-	chi2 = fm * float64(df) * w
-	p = distuv.ChiSquared{K: float64(df)}.Survival(chi2)
-	return w, chi2, df, p, true
+	return 12 * s / den, true
 }

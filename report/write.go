@@ -7,7 +7,7 @@ import (
 	"path/filepath"
 )
 
-// Write writes report.html, methods.md and figures/*.svg + figures/*.png
+// Write writes report.html, methods.md and figures/*.svg, *.pdf and *.png
 // into dir (which exists). Each file is written atomically (temp file in the
 // same dir, then rename). Uses r.Sensitivity (call Analyze first). The
 // output depends only on r: no timestamps, maps iterated in sorted order.
@@ -23,27 +23,9 @@ func Write(dir string, r *Results) error {
 	} else if !st.IsDir() {
 		return fmt.Errorf("report: output %s is not a folder", dir)
 	}
-	figDir := filepath.Join(dir, "figures")
-	if err := os.MkdirAll(figDir, 0o755); err != nil {
-		return fmt.Errorf("report: create %s: %w", figDir, err)
-	}
-	var rendered []renderedFigure
-	for _, f := range figures(r) {
-		svg, err := renderSVG(f)
-		if err != nil {
-			return err
-		}
-		png, err := renderPNG(f)
-		if err != nil {
-			return err
-		}
-		if err := writeAtomic(filepath.Join(figDir, f.Name+".svg"), svg); err != nil {
-			return err
-		}
-		if err := writeAtomic(filepath.Join(figDir, f.Name+".png"), png); err != nil {
-			return err
-		}
-		rendered = append(rendered, renderedFigure{fig: f, svg: svg})
+	rendered, err := writeFigures(filepath.Join(dir, "figures"), r)
+	if err != nil {
+		return err
 	}
 	methods := methodsText(r)
 	if err := writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods)); err != nil {
@@ -54,12 +36,6 @@ func Write(dir string, r *Results) error {
 		return err
 	}
 	return writeAtomic(filepath.Join(dir, "report.html"), page)
-}
-
-// renderedFigure is a figure with its SVG bytes.
-type renderedFigure struct {
-	fig figure
-	svg []byte
 }
 
 // writeAtomic writes data to path through a temporary file in the same

@@ -8,21 +8,53 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 )
 
-// writeSample analyses the sample and writes the report into a temp dir.
-func writeSample(t testing.TB) (string, *Results) {
-	t.Helper()
-	r := analyzedSample(t)
-	dir := t.TempDir()
-	if err := Write(dir, r); err != nil {
-		t.Fatal(err)
-	}
-	return dir, r
+// shared holds one report written from the analysed sample, reused by the
+// tests that only read it (writing takes a few seconds: 300 dpi PNGs).
+var shared struct {
+	once sync.Once
+	dir  string
+	r    *Results
+	err  error
 }
 
-var figureNames = []string{"metrics_vs_area", "roc_curves", "map", "rings"}
+// TestMain removes the shared report folder after the tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if shared.dir != "" {
+		os.RemoveAll(shared.dir)
+	}
+	os.Exit(code)
+}
+
+// writeSample returns a folder holding the report of the analysed sample
+// and the results it was written from. Callers must not change either.
+func writeSample(t testing.TB) (string, *Results) {
+	t.Helper()
+	shared.once.Do(func() {
+		r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+		if err == nil {
+			err = Analyze(r)
+		}
+		var dir string
+		if err == nil {
+			dir, err = os.MkdirTemp("", "areasweep-report-test-")
+		}
+		if err == nil {
+			err = Write(dir, r)
+		}
+		shared.dir, shared.r, shared.err = dir, r, err
+	})
+	if shared.err != nil {
+		t.Fatal(shared.err)
+	}
+	return shared.dir, shared.r
+}
+
+var figureNames = []string{"metrics_vs_area", "roc_curves", "extent_maps", "ring_steps"}
 
 // TestWriteFiles checks that every file is there, the PNGs decode at a
 // readable size, no temp files are left, and a second write is
@@ -31,7 +63,9 @@ func TestWriteFiles(t *testing.T) {
 	dir, r := writeSample(t)
 	want := []string{"report.html", "methods.md"}
 	for _, f := range figureNames {
-		want = append(want, filepath.Join("figures", f+".svg"), filepath.Join("figures", f+".png"))
+		for _, ext := range figureFormats {
+			want = append(want, filepath.Join("figures", f+"."+ext))
+		}
 	}
 	first := map[string][]byte{}
 	for _, name := range want {
@@ -45,9 +79,13 @@ func TestWriteFiles(t *testing.T) {
 			if err != nil {
 				t.Fatalf("%s: %v", name, err)
 			}
-			if b := img.Bounds(); b.Dx() < 800 || b.Dy() < 300 {
-				t.Errorf("%s is only %dx%d pixels", name, b.Dx(), b.Dy())
+			// 300 dpi at one or two journal columns (85 or 175 mm).
+			if b := img.Bounds(); b.Dx() != 1004 && b.Dx() != 2067 {
+				t.Errorf("%s is %d pixels wide, want 1004 or 2067 (85 or 175 mm at 300 dpi)", name, b.Dx())
 			}
+		}
+		if strings.HasSuffix(name, ".pdf") && !bytes.HasPrefix(data, []byte("%PDF-")) {
+			t.Errorf("%s is not a PDF", name)
 		}
 		if strings.HasSuffix(name, ".svg") && !bytes.Contains(data, []byte("<svg")) {
 			t.Errorf("%s is not an SVG", name)
@@ -169,16 +207,23 @@ func TestMethodsText(t *testing.T) {
 	want := []string{
 		"## Methods", "## Reply to a reviewer",
 		r.Software.Name + " " + r.Software.Version,
-		"E = 0.05 and 0.1", strconv.Itoa(r.Settings.Iterations) + " bootstrap", "50% of the test records",
+		"E = 0.05 and 0.1", "published bootstrap of " + strconv.Itoa(r.Settings.Iterations) + " resamples", "50% of the test records",
 		"seed " + strconv.FormatUint(r.Seed, 10),
 		"base (study region polygon; " + fmtArea(r.Extents[0].AreaKm2) + " km²)",
 		"AUC of good ranged " + f3(auc.Min) + "–" + f3(auc.Max),
-		signed3(auc.Slope.PerDoubling) + " per doubling",
-		"evaluation aids",
+		"evaluation aids", "evaluation extents",
+		"Hanley & McNeil 1982", "Anderson et al. 2003", "DeLong et al. (1988)", "Hirzel et al. 2006", "Peterson et al. 2008",
+		"presences' own cells are part of that background", "x_E interpolated linearly", "4096-bin histogram",
+		strconv.Itoa(r.Settings.PairedResamples) + " full-size resamples", "AUC ±0.02", "differ in their test records",
 	}
 	for _, w := range want {
 		if !strings.Contains(md, w) {
 			t.Errorf("methods.md lacks %q", w)
+		}
+	}
+	for _, bad := range []string{"calibration extent", "same test records", "chi-square"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("methods.md says %q", bad)
 		}
 	}
 }
@@ -215,11 +260,10 @@ func TestFormatting(t *testing.T) {
 		{areaRange(28232, 231212), "from 28.2 to 231 thousand km²"},
 		{areaRange(1200, 40000), "from 1.2 to 40 thousand km²"},
 		{areaRange(120, 9800), "from 120 to 9,800 km²"},
+		{areaRange(391788.6, 3251635.3), "from 392 to 3,252 thousand km²"},
 		{signed3(0.0312), "+0.031"},
 		{signed3(-0.0004), "+0.000"},
 		{pct(0.714), "71%"},
-		{shortArea(50000), "50k"},
-		{shortArea(2e6), "2M"},
 	}
 	for _, c := range cases {
 		if c.got != c.want {
@@ -235,6 +279,66 @@ func BenchmarkWrite_3models10extents(b *testing.B) {
 	for b.Loop() {
 		if err := Write(dir, r); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// TestThresholdTable checks the long threshold-test table: its spelled-out
+// headers, one row per scored model, extent and rule, "k of n" matching
+// the results (missed = n - successes), and that no page, methods text or
+// figure shortens "partial ROC".
+func TestThresholdTable(t *testing.T) {
+	dir, r := writeSample(t)
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	html := string(page)
+	tbl := regexp.MustCompile(`(?s)<table class="sortable" id="tbl-thresholds">(.*?)</table>`).FindStringSubmatch(html)
+	if tbl == nil {
+		t.Fatal("no threshold tests table")
+	}
+	for _, h := range []string{"rule", "cut value", "test records missed (k of n)", "share of the extent at or above the cut", "one-sided binomial P"} {
+		if !strings.Contains(tbl[1], `<th scope="col">`+h+`</th>`) {
+			t.Errorf("threshold table lacks header %q", h)
+		}
+	}
+	rows := regexp.MustCompile(`(?s)<tr><td>([^<]*)</td><td>([^<]*)</td><td>([^<]*)</td><td[^>]*>[^<]*</td><td[^>]*>(\d+) of (\d+)</td>`).FindAllStringSubmatch(tbl[1], -1)
+	want := 0
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, th := range sc.Thresholds {
+			want++
+			found := false
+			for _, row := range rows {
+				if row[1] == sc.Model && row[2] == sc.Extent && row[3] == ruleName(th) {
+					found = true
+					if row[4] != strconv.Itoa(th.N-th.Successes) || row[5] != strconv.Itoa(th.N) {
+						t.Errorf("%s on %s, %s: %s of %s, want %d of %d", sc.Model, sc.Extent, row[3], row[4], row[5], th.N-th.Successes, th.N)
+					}
+				}
+			}
+			if !found {
+				t.Errorf("no row for %s on %s, %s", sc.Model, sc.Extent, ruleName(th))
+			}
+		}
+	}
+	if len(rows) != want || want == 0 {
+		t.Errorf("%d threshold rows, want %d", len(rows), want)
+	}
+	files := []string{"report.html", "methods.md"}
+	for _, f := range figureNames {
+		files = append(files, filepath.Join("figures", f+".svg"))
+	}
+	for _, f := range files {
+		data, err := os.ReadFile(filepath.Join(dir, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if m := regexp.MustCompile(`(?i)\bp\s?roc\b`).Find(data); m != nil {
+			t.Errorf("%s shortens partial ROC to %q", f, m)
 		}
 	}
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
 
 	"github.com/spf13/cobra"
@@ -40,33 +39,34 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&opts.Out, "out", opts.Out, "output directory")
-	f.BoolVar(&opts.Force, "force", false, "replace an existing output directory")
-	f.BoolVar(&opts.Quiet, "quiet", false, "no progress output")
-	f.IntVar(&opts.Workers, "workers", 0, "scoring goroutines (default: all cores)")
-	f.Uint64Var(&opts.Seed, "scenario-seed", opts.Seed, "seed of the invented landscape")
+	f.StringVar(&opts.Out, "out", opts.Out, "output directory `DIR`")
+	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files (inputs/ included) in an existing output directory")
+	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
+	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores)", maxWorkers))
+	f.Uint64Var(&opts.Seed, "scenario-seed", opts.Seed, "seed `N` of the invented landscape")
 	return cmd
 }
 
+// demoRun generates the scenario inside the run's staging folder, so the
+// generated inputs are removed with it on every exit path (an error, a
+// signal, a crash) and arrive in --out/inputs with the results.
 func demoRun(o *DemoOptions) error {
-	if st, err := os.Stat(o.Out); err == nil && st.IsDir() {
-		if entries, _ := os.ReadDir(o.Out); len(entries) > 0 && !o.Force {
-			return badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace it", o.Out))
-		}
+	if o.Workers < 0 || o.Workers > maxWorkers {
+		return badInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers))
 	}
-	// Inputs are generated outside --out first, then moved in with the results.
-	tmp, err := os.MkdirTemp(filepath.Dir(filepath.Clean(o.Out)), ".areasweep-demo-inputs-")
+	d, err := openOut(o.Out, o.Force, nil)
 	if err != nil {
-		return fmt.Errorf("demo: %w", err)
+		return err
 	}
-	defer os.RemoveAll(tmp)
-	inDir := filepath.Join(tmp, "inputs")
+	defer d.abort()
+	d.demo = true
+	inDir := filepath.Join(d.Stage, "inputs")
 	files, err := scenario.Write(inDir, o.Seed)
 	if err != nil {
 		return fmt.Errorf("demo: generate scenario: %w", err)
 	}
 	if !o.Quiet {
-		fmt.Fprintf(o.IO.ErrOut, "demo: invented species %s written to %s\n", scenario.Species, inDir)
+		fmt.Fprintf(o.IO.ErrOut, "demo: invented species %s written to %s\n", scenario.Species, filepath.Join(o.Out, "inputs"))
 	}
 	run := defaultRunOptions()
 	fs := pflag.NewFlagSet("demo", pflag.ContinueOnError)
@@ -77,9 +77,9 @@ func demoRun(o *DemoOptions) error {
 	run.Quiet = o.Quiet
 	run.Workers = o.Workers
 	if err := run.resolve(fs); err != nil {
-		return fmt.Errorf("demo: the generated study file is wrong: %w", err)
+		return internal(fmt.Errorf("demo: the generated study file is wrong: %w", err))
 	}
 	run.Out = o.Out
 	run.inputsDir = inDir
-	return sweep(&run)
+	return sweepInto(&run, d)
 }

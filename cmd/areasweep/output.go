@@ -17,52 +17,6 @@ import (
 	"areasweep/report"
 )
 
-// prepareOut checks the output directory and returns a fresh staging
-// directory beside it. Everything is written into the stage and moved into
-// place at the end, so a failed run leaves no half-written output.
-func prepareOut(out string, force bool) (string, error) {
-	if st, err := os.Stat(out); err == nil {
-		if !st.IsDir() {
-			return "", badInput(fmt.Errorf("--out %s exists and is not a directory", out))
-		}
-		entries, err := os.ReadDir(out)
-		if err != nil {
-			return "", badInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
-		}
-		if len(entries) > 0 && !force {
-			return "", badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace it, or choose another directory", out))
-		}
-	}
-	parent := filepath.Dir(filepath.Clean(out))
-	if err := os.MkdirAll(parent, 0o755); err != nil {
-		return "", badInput(fmt.Errorf("cannot create %s: %v", parent, err))
-	}
-	stage, err := os.MkdirTemp(parent, "."+filepath.Base(out)+".partial-")
-	if err != nil {
-		return "", badInput(fmt.Errorf("cannot write in %s: %v", parent, err))
-	}
-	return stage, nil
-}
-
-// finishOut moves the stage into place, replacing an existing out.
-func finishOut(stage, out string) error {
-	if _, err := os.Stat(out); err == nil {
-		old := stage + ".old"
-		if err := os.Rename(out, old); err != nil {
-			return fmt.Errorf("cannot replace %s: %w", out, err)
-		}
-		if err := os.Rename(stage, out); err != nil {
-			os.Rename(old, out)
-			return fmt.Errorf("cannot move results into %s: %w", out, err)
-		}
-		return os.RemoveAll(old)
-	}
-	if err := os.Rename(stage, out); err != nil {
-		return fmt.Errorf("cannot move results into %s: %w", out, err)
-	}
-	return nil
-}
-
 // writeAtomic writes data to a temporary file beside path and renames it.
 func writeAtomic(path string, data []byte) error {
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-")
@@ -78,7 +32,8 @@ func writeAtomic(path string, data []byte) error {
 		os.Remove(tmp.Name())
 		return err
 	}
-	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+	if err := os.Chmod(tmp.Name(), 0o666&^umask); err != nil {
+		os.Remove(tmp.Name())
 		return err
 	}
 	return os.Rename(tmp.Name(), path)
@@ -86,48 +41,107 @@ func writeAtomic(path string, data []byte) error {
 
 func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// scoresCSV renders the scores as a tidy table: one row per model, extent
-// and metric, with the E or threshold the metric depends on.
+// scoresCSV renders the scores as one tidy table: one row per model,
+// extent and value, for scored pairs only. test_points is the number of
+// test records inside the extent that every score of the row uses (for a
+// model-minus-null row, the test points both sides share). role is
+// "model" or "null". Partial
+// ROC rows carry their E; threshold-test rows carry their rule
+// ("minimum_training_presence", "p10_training_presence", "fixed_<value>")
+// and give, per rule, the cut value, the test records missed (k) out of
+// test_points, the share missed, the share of the extent at or above the
+// cut and the one-sided binomial P.
 func scoresCSV(r *report.Results) []byte {
 	var buf bytes.Buffer
 	w := csv.NewWriter(&buf)
-	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "metric", "e", "threshold", "value"})
+	w.Write([]string{"model", "extent", "extent_kind", "extent_area_km2", "test_points", "metric", "e", "rule", "value", "role"})
 	kinds := map[string]report.Extent{}
 	for _, e := range r.Extents {
 		kinds[e.ID] = e
+	}
+	roles := map[string]report.Model{}
+	for _, m := range r.Models {
+		roles[m.Name] = m
 	}
 	for _, sc := range r.Scores {
 		if !sc.Scored {
 			continue
 		}
 		ex := kinds[sc.Extent]
-		row := func(metric, e, th string, v float64) {
-			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), metric, e, th, ftoa(v)})
+		n := strconv.Itoa(sc.TestPoints)
+		role := report.RoleModel
+		if roles[sc.Model].IsNull() {
+			role = report.RoleNull
+		}
+		row := func(metric, e, rule string, v float64) {
+			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v), role})
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
 		row("auc_train", "", "", sc.AUCTrain)
 		row("auc_boot_sd", "", "", sc.AUCBootSD)
+		row("auc_se", "", "", sc.AUCSE)
+		row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
 		for _, p := range sc.PartialROC {
 			e := ftoa(p.E)
-			row("partial_roc_ratio", e, "", p.Ratio)
-			row("partial_roc_ratio_mean", e, "", p.RatioMean)
-			row("partial_roc_ci_low", e, "", p.CILow)
-			row("partial_roc_ci_high", e, "", p.CIHigh)
+			if !p.Defined {
+				// Undefined ratio (see results.json partial_roc): no value row.
+				row("partial_roc_undefined", e, "", 1)
+			} else {
+				row("partial_roc_ratio", e, "", p.Ratio)
+			}
+			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
+			row("partial_roc_resample_p2_5", e, "", p.CILow)
+			row("partial_roc_resample_p97_5", e, "", p.CIHigh)
 			row("partial_roc_p_value", e, "", p.PValue)
 		}
 		for _, t := range sc.Thresholds {
-			name := t.Name
-			if name == "fixed" {
-				name = "fixed_" + ftoa(t.Value)
+			rule := t.Name
+			if rule == "fixed" {
+				rule = "fixed_" + ftoa(t.Value)
 			}
-			row("threshold_value", "", name, t.Value)
-			row("omission_rate", "", name, t.Omission)
-			row("area_fraction_present", "", name, t.AreaFraction)
-			row("binomial_p", "", name, t.PBinomial)
+			row("cut_value", "", rule, t.Value)
+			row("test_points_missed", "", rule, float64(t.N-t.Successes))
+			row("share_missed", "", rule, t.Omission)
+			row("extent_share_at_or_above_cut", "", rule, t.AreaFraction)
+			row("binomial_p_one_sided", "", rule, t.PBinomial)
 		}
 		if sc.Boyce != nil {
 			row("boyce_index", "", "", sc.Boyce.Index)
+		}
+		// The sorting bias belongs to the extent; it is listed with the
+		// distance-only null, whose pass measures it.
+		if sb := ex.SortingBias; sb != nil && sb.Defined && roles[sc.Model].NullKind == report.NullDistance {
+			row("sorting_bias_ratio_mean", "", "", sb.RatioMean)
+			row("sorting_bias_ratio_median", "", "", sb.RatioMedian)
+			row("sorting_bias_test_mean_km", "", "", sb.TestMeanKm)
+			row("sorting_bias_background_mean_km", "", "", sb.BackgroundMeanKm)
+			row("sorting_bias_test_median_km", "", "", sb.TestMedianKm)
+			row("sorting_bias_background_median_km", "", "", sb.BackgroundMedianKm)
+		}
+	}
+	// Model minus null on each extent (results.json paired records of kind
+	// "null"): the difference, its SE and 95% interval, on the row of the
+	// model, with the null's name in the metric.
+	for _, p := range r.Paired {
+		if p.Kind != report.PairedKindNull || !p.Defined {
+			continue
+		}
+		ex := kinds[p.Extent]
+		var metric, e string
+		switch {
+		case p.Metric == "auc":
+			metric = "auc_minus_" + p.OtherModel
+		case strings.HasPrefix(p.Metric, "partial_roc_e"):
+			metric, e = "partial_roc_ratio_minus_"+p.OtherModel, strings.TrimPrefix(p.Metric, "partial_roc_e")
+		default:
+			continue
+		}
+		for _, v := range []struct {
+			suffix string
+			v      float64
+		}{{"", p.Diff}, {"_se", p.SE}, {"_ci_low", p.Low}, {"_ci_high", p.High}} {
+			w.Write([]string{p.Model, p.Extent, ex.Kind, ftoa(ex.AreaKm2), strconv.Itoa(p.CommonPoints), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
 		}
 	}
 	w.Flush()

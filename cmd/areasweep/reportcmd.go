@@ -10,6 +10,10 @@ import (
 	"areasweep/report"
 )
 
+// maxResultsBytes bounds the results.json that report reads (our choice;
+// a run with 64 extents and a million points writes well under it).
+const maxResultsBytes = 1 << 30
+
 // ReportOptions re-renders a finished run's report.
 type ReportOptions struct {
 	IO    *IO
@@ -42,8 +46,15 @@ with --force.`,
 
 func reportRun(o *ReportOptions) error {
 	path := filepath.Join(o.Dir, "results.json")
-	if _, err := os.Stat(path); err != nil {
+	st, err := os.Stat(path)
+	if err != nil {
 		return badInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
+	}
+	if !st.Mode().IsRegular() {
+		return badInput(fmt.Errorf("%s is not a regular file: give the --out directory of a finished run", path))
+	}
+	if st.Size() > maxResultsBytes {
+		return badInput(fmt.Errorf("%s is larger than %d MiB, more than a run writes; is this the right folder?", path, maxResultsBytes>>20))
 	}
 	if !o.Force {
 		for _, f := range []string{"report.html", "methods.md", "figures"} {
@@ -56,11 +67,14 @@ func reportRun(o *ReportOptions) error {
 	if err != nil {
 		return badInput(err)
 	}
+	if err := report.Validate(r); err != nil {
+		return badInput(err)
+	}
 	if err := report.Analyze(r); err != nil {
-		return err
+		return badInput(err)
 	}
 	if err := report.Write(o.Dir, r); err != nil {
-		return err
+		return writeFailed(err)
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
 	return nil

@@ -4,16 +4,37 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"runtime/debug"
+	"strings"
+	"sync"
+	"syscall"
 
 	"github.com/spf13/cobra"
+
+	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
 )
 
-// Exit codes, defined once.
+// Exit codes, defined once; README "Exit codes" and the --help text of
+// the root command list them.
 const (
-	exitOK       = 0
-	exitInternal = 1
-	exitBadInput = 2
+	exitOK       = 0 // success
+	exitFailed   = 1 // the run failed for an outside reason (disk full, a file removed during the run)
+	exitBadInput = 2 // bad input or settings: nothing was written
+	exitInternal = 3 // a bug in areasweep (a recovered crash): please report
+	// A run stopped by a signal exits with 128 + the signal number
+	// (130 for SIGINT, 143 for SIGTERM, 129 for SIGHUP).
 )
+
+const exitCodesHelp = `Exit codes:
+  0    success
+  1    the run failed for an outside reason (disk full, a file changed or removed during the run)
+  2    bad input or settings; nothing was written
+  3    internal error (a bug in areasweep); please report it
+  128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP); partial results removed`
 
 // version is the software version, set at build time with
 // -ldflags "-X main.version=...".
@@ -37,6 +58,20 @@ func badInput(err error) error {
 	return inputError{err}
 }
 
+// internalError marks a broken internal contract (a bug): exit 3.
+type internalError struct{ err error }
+
+func (e internalError) Error() string { return e.err.Error() }
+func (e internalError) Unwrap() error { return e.err }
+
+// internal wraps err as an internal error (nil stays nil).
+func internal(err error) error {
+	if err == nil {
+		return nil
+	}
+	return internalError{err}
+}
+
 // IO holds the streams commands use; tests pass buffers.
 type IO struct {
 	In     io.Reader
@@ -46,8 +81,46 @@ type IO struct {
 	Terminal bool
 }
 
-// Main runs the command line args and returns the exit code.
-func Main(args []string, in io.Reader, out, errOut io.Writer) int {
+// runLog is the log of the run in progress, for a crash report.
+var runLog struct {
+	mu sync.Mutex
+	b  *strings.Builder
+}
+
+func setRunLog(b *strings.Builder) {
+	runLog.mu.Lock()
+	runLog.b = b
+	runLog.mu.Unlock()
+}
+
+// Main runs the command line args and returns the exit code. GDAL is set
+// up once here (drivers, configuration, the message recorder); a signal
+// removes the run's staging folder and exits with 128+N; a panic is
+// recovered, reported in one line and its trace written to a run.log.
+func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
+	extent.Register()
+	gdalmsg.Install()
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	stop := make(chan struct{})
+	defer func() { signal.Stop(sigs); close(stop) }()
+	go func() {
+		select {
+		case s := <-sigs:
+			abortAll()
+			n := int(s.(syscall.Signal))
+			fmt.Fprintf(errOut, "areasweep: stopped by %s; this run's partial results were removed and --out was left as it was\n", signalName(s))
+			os.Exit(128 + n)
+		case <-stop:
+		}
+	}()
+	defer func() {
+		if r := recover(); r != nil {
+			abortAll()
+			code = reportCrash(r, debug.Stack(), errOut)
+		}
+	}()
+
 	streams := &IO{In: in, Out: out, ErrOut: errOut, Terminal: isTerminal(errOut)}
 	root := newRootCmd(streams)
 	root.SetArgs(args)
@@ -57,11 +130,55 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) int {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintf(errOut, "areasweep: %v\n", err)
+	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
 	var ie inputError
-	if errors.As(err, &ie) {
+	var ne internalError
+	switch {
+	case errors.As(err, &ie):
 		return exitBadInput
+	case errors.As(err, &ne):
+		fmt.Fprintln(errOut, "areasweep: this is a bug in areasweep; please report it with the command line and run.log")
+		return exitInternal
 	}
+	return exitFailed
+}
+
+func signalName(s os.Signal) string {
+	switch s {
+	case syscall.SIGINT:
+		return "SIGINT (Ctrl-C)"
+	case syscall.SIGTERM:
+		return "SIGTERM"
+	case syscall.SIGHUP:
+		return "SIGHUP"
+	}
+	return s.String()
+}
+
+// reportCrash writes the log so far and the trace into run.log in a new
+// folder under the temporary directory, prints one line, and returns the
+// internal-error code. The staging folder is gone by then, so the crash
+// file cannot sit in --out.
+func reportCrash(r any, stack []byte, errOut io.Writer) int {
+	where := "(the crash report could not be written)"
+	if dir, err := os.MkdirTemp("", "areasweep-crash-"); err == nil {
+		var b strings.Builder
+		runLog.mu.Lock()
+		if runLog.b != nil {
+			b.WriteString(runLog.b.String())
+		}
+		runLog.mu.Unlock()
+		fmt.Fprintf(&b, "internal error: %v\n\n%s", r, stack)
+		p := filepath.Join(dir, "run.log")
+		if os.WriteFile(p, []byte(b.String()), 0o644&^umask) == nil {
+			where = p
+		}
+	}
+	msg := strings.SplitN(fmt.Sprint(r), "\n", 2)[0]
+	if len(msg) > 200 {
+		msg = msg[:200] + "..."
+	}
+	fmt.Fprintf(errOut, "areasweep: internal error (%s); this is a bug, please report it with %s\n", msg, where)
 	return exitInternal
 }
 
@@ -69,14 +186,18 @@ func newRootCmd(streams *IO) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "areasweep",
 		Short: "Rescore a distribution model on a family of extents: is the score the model's or the extent's?",
-		Long: `areasweep builds a family of alternative calibration/evaluation extents from a base
+		Long: `areasweep builds a family of alternative evaluation extents from a base
 study region (geodesic buffers in and out, buffers around occurrences, convex hulls,
 occupied ecoregion units, the whole raster), recomputes full ROC AUC, partial ROC,
 threshold omission with binomial tests and the continuous Boyce index on each, and
-reports how much of each score comes from the extent rather than from the model.`,
+reports how much of each score comes from the extent rather than from the model.
+
+` + exitCodesHelp,
+		Version:       version,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
+	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return badInput(fmt.Errorf("%v (see 'areasweep %s --help')", err, c.Name()))
 	})

@@ -3,11 +3,16 @@ package main
 import (
 	"fmt"
 	"math"
+	"sort"
+	"strconv"
+	"strings"
 
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 
 	"areasweep/cmd/inputs"
+	"areasweep/extent"
+	"areasweep/report"
 )
 
 // RunOptions holds everything a run needs. Flags and the study file fill
@@ -17,6 +22,8 @@ type RunOptions struct {
 
 	Study              string
 	Models             []string // NAME=PATH
+	Nulls              []string // NAME=PATH, rasters scored as nulls
+	NoDistanceNull     bool
 	Occurrences        string
 	OccurrencesCRS     string
 	Region             string
@@ -40,6 +47,8 @@ type RunOptions struct {
 	NoThin             bool
 	MembershipTIFF     bool
 	Workers            int
+	// Tolerances of the equivalence verdicts (report.Settings).
+	ToleranceAUC, TolerancePartialROC, ToleranceOmission, ToleranceBoyce float64
 
 	// ExtentsOnly stops after building and exporting the family.
 	ExtentsOnly bool
@@ -50,8 +59,23 @@ type RunOptions struct {
 	inputsDir string
 }
 
-// maxIterations bounds the bootstrap so that a typo cannot ask for hours.
-const maxIterations = 1_000_000
+// Bounds on settings, so that a typo cannot ask for hours or for more
+// memory than a machine has. Each is our own choice, far above real use.
+const (
+	// maxIterations bounds the bootstrap.
+	maxIterations = 1_000_000
+	// maxThresholds bounds --thresholds (each is an exact layout value and
+	// a row per model and extent).
+	maxThresholds = 1000
+	// maxE bounds --e (one partial ROC bootstrap per value).
+	maxE = 100
+	// maxBuffers bounds each buffer list; the family holds at most
+	// extent.MaxMembers members anyway.
+	maxBuffers = extent.MaxMembers
+	// maxWorkers bounds --workers: more goroutines than this only add
+	// accumulators to merge.
+	maxWorkers = 256
+)
 
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
@@ -65,6 +89,11 @@ func defaultRunOptions() RunOptions {
 		Fraction:           0.5,
 		Seed:               1,
 		Out:                "areasweep-out",
+
+		ToleranceAUC:        report.DefaultToleranceAUC,
+		TolerancePartialROC: report.DefaultTolerancePartialROC,
+		ToleranceOmission:   report.DefaultToleranceOmission,
+		ToleranceBoyce:      report.DefaultToleranceBoyce,
 	}
 }
 
@@ -109,32 +138,94 @@ func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command,
 	}
 }
 
-func bindRunFlags(f *pflag.FlagSet, o *RunOptions) {
-	f.StringVar(&o.Study, "study", "", "study file (YAML) whose keys are these flag names")
-	f.StringArrayVar(&o.Models, "model", nil, "model raster as NAME=PATH (repeatable; all on one grid)")
-	f.StringVar(&o.Occurrences, "occurrences", "", "CSV of occurrences: longitude, latitude and role (train/test) columns")
-	f.StringVar(&o.OccurrencesCRS, "occurrences-crs", "", "CRS of the occurrence coordinates (default WGS84 lon/lat), e.g. EPSG:3035")
-	f.StringVar(&o.Region, "region", "", "base study region polygons (any OGR format: GeoPackage, Shapefile, GeoJSON)")
-	f.StringVar(&o.Ecoregions, "ecoregions", "", "optional ecoregion/unit polygon layer")
-	f.StringVar(&o.EcoregionField, "ecoregion-field", "", "id field of the ecoregion layer")
-	f.IntVar(&o.EcoregionMinPoints, "ecoregion-min-points", o.EcoregionMinPoints, "units with at least this many training points are occupied")
+// floatList is a comma-separated list flag. Its help shows LIST and a
+// default such as -50,50,100 (pflag's own slice type shows float64Slice
+// and [0.050000]). The first use replaces the default; repeating the flag
+// appends.
+type floatList struct {
+	p       *[]float64
+	name    string
+	changed bool
+}
+
+func (f *floatList) String() string {
+	if f.p == nil {
+		return ""
+	}
+	parts := make([]string, len(*f.p))
+	for i, v := range *f.p {
+		parts[i] = strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	return strings.Join(parts, ",")
+}
+
+func (f *floatList) Set(s string) error {
+	v, err := inputs.ParseFloatList(f.name, s)
+	if err != nil {
+		return err
+	}
+	if !f.changed {
+		*f.p = v
+	} else {
+		*f.p = append(*f.p, v...)
+	}
+	f.changed = true
+	return nil
+}
+
+func (f *floatList) Type() string { return "LIST" }
+
+func floatListVar(fs *pflag.FlagSet, p *[]float64, name string, value []float64, usage string) {
+	*p = value
+	fs.Var(&floatList{p: p, name: name}, name, usage)
+}
+
+// bindRunFlags binds the flags of run. For extents (scoring false) the
+// scoring flags are accepted but hidden from its help, which shows only the
+// flags that change the family or the files it writes.
+func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) }
+
+func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
+	f.StringVar(&o.Study, "study", "", "study `FILE` (YAML) whose keys are these flag names")
+	f.StringArrayVar(&o.Models, "model", nil, "model raster as `NAME=PATH` (repeatable; all on one grid)")
+	f.StringArrayVar(&o.Nulls, "null", nil, "raster scored as a null, not a model, as `NAME=PATH` (repeatable; same grid): shown beside the models, never ranked")
+	f.BoolVar(&o.NoDistanceNull, "no-distance-null", false, "skip the distance-only null (minus the distance to the nearest training point) and the sorting-bias ratios")
+	f.StringVar(&o.Occurrences, "occurrences", "", "CSV `FILE` of occurrences: longitude, latitude and role (train/test) columns")
+	f.StringVar(&o.OccurrencesCRS, "occurrences-crs", "", "`CRS` of the occurrence coordinates, e.g. EPSG:3035 (default WGS84 lon/lat)")
+	f.StringVar(&o.Region, "region", "", "`FILE` of base study region polygons (GeoPackage, Shapefile, GeoJSON, any OGR format)")
+	f.StringVar(&o.Ecoregions, "ecoregions", "", "optional ecoregion/unit polygon layer `FILE`")
+	f.StringVar(&o.EcoregionField, "ecoregion-field", "", "id field `NAME` of the ecoregion layer")
+	f.IntVar(&o.EcoregionMinPoints, "ecoregion-min-points", o.EcoregionMinPoints, "units with at least `K` training points are occupied")
 	f.BoolVar(&o.EcoregionClip, "ecoregion-clip", false, "also add the ecoregion extents clipped to the base region")
-	f.StringArrayVar(&o.Extra, "extra", nil, "extra extent polygons as NAME=PATH (repeatable)")
-	f.Float64SliceVar(&o.RegionBuffers, "region-buffers", o.RegionBuffers, "geodesic buffers of the base region in km; negative shrinks (use --region-buffers=-50,100)")
-	f.Float64SliceVar(&o.PointBuffers, "point-buffers", o.PointBuffers, "radii in km of discs around the training points")
+	f.StringArrayVar(&o.Extra, "extra", nil, "extra extent polygons as `NAME=PATH` (repeatable)")
+	floatListVar(f, &o.RegionBuffers, "region-buffers", o.RegionBuffers, "geodesic buffers of the base region in km, comma-separated; negative shrinks (write --region-buffers=-50,100)")
+	floatListVar(f, &o.PointBuffers, "point-buffers", o.PointBuffers, "radii in km of discs around the training points, comma-separated")
 	f.BoolVar(&o.PointBuffersAll, "point-buffers-all", false, "draw point buffers around all points, not only training points")
-	f.Float64SliceVar(&o.HullBuffers, "hull-buffers", o.HullBuffers, "buffers in km of the training points' convex hull (0 = the hull itself)")
-	f.Float64SliceVar(&o.E, "e", o.E, "allowable omission E for partial ROC, each in (0,1)")
-	f.IntVar(&o.Iterations, "iterations", o.Iterations, "bootstrap iterations for partial ROC")
-	f.Float64Var(&o.Fraction, "fraction", o.Fraction, "share of test points drawn (with replacement) in each bootstrap iteration, in (0,1]")
-	f.Float64SliceVar(&o.Thresholds, "thresholds", nil, "fixed suitability thresholds to test besides the training-presence ones")
-	f.Uint64Var(&o.Seed, "seed", o.Seed, "random seed of the bootstrap")
-	f.StringVar(&o.Out, "out", o.Out, "output directory (an existing non-empty one needs --force)")
-	f.BoolVar(&o.Force, "force", false, "replace an existing output directory")
-	f.BoolVar(&o.Quiet, "quiet", false, "no progress bars")
+	floatListVar(f, &o.HullBuffers, "hull-buffers", o.HullBuffers, "buffers in km of the training points' convex hull, comma-separated (0 = the hull itself)")
+	{
+		floatListVar(f, &o.E, "e", o.E, "allowable omission E for partial ROC, each in (0,1), comma-separated")
+		f.IntVar(&o.Iterations, "iterations", o.Iterations, fmt.Sprintf("resamples `B`: of the published partial ROC bootstrap and of the paired full-size resamples (1 to %d)", maxIterations))
+		f.Float64Var(&o.Fraction, "fraction", o.Fraction, "share `F` of test points drawn (with replacement) in each bootstrap iteration, in (0,1]")
+		floatListVar(f, &o.Thresholds, "thresholds", nil, fmt.Sprintf("fixed suitability thresholds to test besides the training-presence ones, comma-separated (at most %d)", maxThresholds))
+		f.Uint64Var(&o.Seed, "seed", o.Seed, "random seed `N` of the bootstrap")
+		f.IntVar(&o.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores); results do not depend on it", maxWorkers))
+		f.Float64Var(&o.ToleranceAUC, "tolerance-auc", o.ToleranceAUC, "AUC difference `D` from the base extent you treat as negligible (our default)")
+		f.Float64Var(&o.TolerancePartialROC, "tolerance-partial-roc", o.TolerancePartialROC, "partial ROC ratio difference `D` you treat as negligible (our default)")
+		f.Float64Var(&o.ToleranceOmission, "tolerance-omission", o.ToleranceOmission, "omission-rate and predicted-area difference `D` you treat as negligible (our default)")
+		f.Float64Var(&o.ToleranceBoyce, "tolerance-boyce", o.ToleranceBoyce, "Boyce index difference `D` you treat as negligible (our default)")
+	}
+	if !scoring {
+		// Accepted (a run's command line works for extents) but not shown:
+		// extents scores nothing.
+		for _, n := range []string{"e", "iterations", "fraction", "thresholds", "seed", "workers", "tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce", "null", "no-distance-null"} {
+			f.MarkHidden(n)
+		}
+	}
+	f.StringVar(&o.Out, "out", o.Out, "output directory `DIR` (an existing non-empty one needs --force)")
+	f.BoolVar(&o.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
+	f.BoolVar(&o.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
 	f.BoolVar(&o.NoThin, "no-thin", false, "keep several presences of one role in one cell (default: one per cell)")
 	f.BoolVar(&o.MembershipTIFF, "membership-tif", false, "also write extents.tif, one band per extent")
-	f.IntVar(&o.Workers, "workers", 0, "scoring goroutines (default: all cores); results do not depend on it")
 }
 
 // resolve merges the study file under the flags and validates the result.
@@ -154,6 +245,9 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	set := func(name string) bool { return !f.Changed(name) }
 	if st.Model != nil && set("model") {
 		o.Models = st.Model
+	}
+	if st.Null != nil && set("null") {
+		o.Nulls = st.Null
 	}
 	str := func(name string, dst *string, v *string) {
 		if v != nil && set(name) {
@@ -178,6 +272,7 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	boolean("point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
 	boolean("no-thin", &o.NoThin, st.NoThin)
 	boolean("membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
+	boolean("no-distance-null", &o.NoDistanceNull, st.NoDistanceNull)
 	if st.Extra != nil && set("extra") {
 		o.Extra = st.Extra
 	}
@@ -200,6 +295,15 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	if st.Seed != nil && set("seed") {
 		o.Seed = *st.Seed
 	}
+	float := func(name string, dst *float64, v *float64) {
+		if v != nil && set(name) {
+			*dst = *v
+		}
+	}
+	float("tolerance-auc", &o.ToleranceAUC, st.ToleranceAUC)
+	float("tolerance-partial-roc", &o.TolerancePartialROC, st.TolerancePartialROC)
+	float("tolerance-omission", &o.ToleranceOmission, st.ToleranceOmission)
+	float("tolerance-boyce", &o.ToleranceBoyce, st.ToleranceBoyce)
 }
 
 // validate checks the settings that need no file access.
@@ -217,6 +321,19 @@ func (o *RunOptions) validate() error {
 			return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
 		}
 		seen[name] = true
+	}
+	for _, m := range o.Nulls {
+		name, _, err := inputs.ParseNamedPath(m)
+		if err != nil {
+			return fmt.Errorf("--null %q: %w", m, err)
+		}
+		if seen[name] {
+			return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
+		}
+		seen[name] = true
+	}
+	if seen[report.DistanceNullName] && !o.NoDistanceNull {
+		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
 	}
 	for _, m := range o.Extra {
 		if _, _, err := inputs.ParseNamedPath(m); err != nil {
@@ -259,6 +376,30 @@ func (o *RunOptions) validate() error {
 			}
 		}
 	}
+	for _, lst := range []struct {
+		name string
+		v    []float64
+		max  int
+		dups bool
+	}{{"region-buffers", o.RegionBuffers, maxBuffers, true}, {"point-buffers", o.PointBuffers, maxBuffers, true},
+		{"hull-buffers", o.HullBuffers, maxBuffers, true}, {"e", o.E, maxE, false}, {"thresholds", o.Thresholds, maxThresholds, false}} {
+		if len(lst.v) > lst.max {
+			return fmt.Errorf("--%s has %d values; at most %d are allowed", lst.name, len(lst.v), lst.max)
+		}
+		if lst.dups {
+			continue // buffer lists are sorted and de-duplicated, as documented
+		}
+		sorted := append([]float64(nil), lst.v...)
+		sort.Float64s(sorted)
+		for i := 1; i < len(sorted); i++ {
+			if sorted[i] == sorted[i-1] {
+				return fmt.Errorf("--%s gives %g twice; give each value once", lst.name, sorted[i])
+			}
+		}
+	}
+	if o.Workers < 0 || o.Workers > maxWorkers {
+		return fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers)
+	}
 	for _, d := range o.PointBuffers {
 		if d <= 0 {
 			return fmt.Errorf("--point-buffers value %g must be positive (km)", d)
@@ -267,6 +408,14 @@ func (o *RunOptions) validate() error {
 	for _, d := range o.HullBuffers {
 		if d < 0 {
 			return fmt.Errorf("--hull-buffers value %g must be 0 (the hull) or positive (km)", d)
+		}
+	}
+	for _, t := range []struct {
+		name string
+		v    float64
+	}{{"tolerance-auc", o.ToleranceAUC}, {"tolerance-partial-roc", o.TolerancePartialROC}, {"tolerance-omission", o.ToleranceOmission}, {"tolerance-boyce", o.ToleranceBoyce}} {
+		if !(t.v > 0) || math.IsInf(t.v, 0) {
+			return fmt.Errorf("--%s is %g; give a positive difference you would treat as negligible", t.name, t.v)
 		}
 	}
 	if o.Out == "" {

@@ -43,6 +43,13 @@ func TestRunFlags(t *testing.T) {
 		{"duplicate model", []string{"--model", "m=a.tif", "--model", "m=b.tif", "--occurrences", "o", "--region", "r"}, nil, "given twice"},
 		{"bad fraction", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--fraction", "1.5"}, nil, "--fraction 1.5 is outside (0,1]"},
 		{"negative point buffer", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--point-buffers=-5"}, nil, "must be positive"},
+		{"nulls", []string{"--model", "m=a.tif", "--null", "effort=e.tif", "--no-distance-null", "--occurrences", "o", "--region", "r"}, func(t *testing.T, o *RunOptions) {
+			if !reflect.DeepEqual(o.Nulls, []string{"effort=e.tif"}) || !o.NoDistanceNull {
+				t.Errorf("nulls %+v", o)
+			}
+		}, ""},
+		{"null named like a model", []string{"--model", "m=a.tif", "--null", "m=b.tif", "--occurrences", "o", "--region", "r"}, nil, "already used by a model"},
+		{"reserved null name", []string{"--model", "distance_null=a.tif", "--occurrences", "o", "--region", "r"}, nil, "kept for the distance-only null"},
 		{"unknown study key", []string{"--study", write(t, dir, "bad.yaml", "modle: x\n")}, nil, "modle"},
 	}
 	for _, c := range cases {

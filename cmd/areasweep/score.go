@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/base64"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -42,13 +43,41 @@ func (s *session) split(vals []float64, valid []bool) modelPoints {
 // scoreModel samples model i at the points, streams it once through the
 // family's accumulators and scores every extent.
 func (s *session) scoreModel(i int, m namedPath) error {
-	g, fam := s.grid, s.fam
 	r, err := pass.Open(m.Path)
 	if err != nil {
 		return badInput(err)
 	}
 	defer r.Close()
-	vals, valid, err := r.Sample(g, s.cell)
+	// The fine histogram (Boyce) spans the exact value range, so that the
+	// same pixels give the same index whatever the file layout.
+	lo, hi, ok, err := r.ExactRange()
+	if err != nil {
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	if !ok {
+		return badInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
+	}
+	role := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
+	if m.Null {
+		role.Role, role.NullKind = report.RoleNull, report.NullRaster
+	}
+	return s.scoreSource(i, role, r, lo, hi, nil)
+}
+
+// source is a model the pass can score: a raster or a computed field.
+type source interface {
+	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
+	Blocks() int
+	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
+}
+
+// scoreSource scores model m (name, path and role filled) from src, the
+// i-th pass of the run: values at the points, the layout (fine histogram
+// over [lo, hi] widened to the point values), one pass, and every metric
+// on every extent. rows, when set, sees every row of the pass.
+func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64, rows func(int, int, []float64, []int64)) error {
+	g, fam := s.grid, s.fam
+	vals, valid, err := src.Sample(g, s.cell)
 	if err != nil {
 		return badInput(err)
 	}
@@ -68,10 +97,6 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
 	}
 	layoutVals = append(layoutVals, s.o.Thresholds...)
-	lo, hi, err := r.ApproxRange()
-	if err != nil {
-		return badInput(err)
-	}
 	for _, v := range layoutVals {
 		lo, hi = math.Min(lo, v), math.Max(hi, v)
 	}
@@ -80,26 +105,36 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	}
 	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
 	if err != nil {
-		return fmt.Errorf("model %s: %w", m.Name, err)
+		if !finiteRange(lo, hi) {
+			return badInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
+		}
+		return internal(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	var pv *pass.Preview
 	if i == 0 {
 		pv = pass.NewPreview(g, previewSide)
 	}
-	opt := pass.Options{Workers: s.o.Workers, Preview: pv}
+	opt := pass.Options{Workers: s.o.Workers, Preview: pv, Rows: rows}
 	if s.valid == nil {
 		// The first pass also finds the valid cells the family is clipped to.
 		opt.Valid = extent.NewValid(g.Cells())
 	}
 	t0 := time.Now()
-	bar := s.progress("scoring "+m.Name, r.Blocks())
+	bar := s.progress("scoring "+m.Name, src.Blocks())
 	opt.Progress = bar.update
-	accs, stats, err := r.Score(g, fam, layout, opt)
+	accs, stats, err := src.Score(g, fam, layout, opt)
 	bar.finish()
 	if err != nil {
-		return badInput(err)
+		var ie *pass.InternalError
+		if errors.As(err, &ie) {
+			return internal(err)
+		}
+		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
-	s.logf("%s: one pass over %d blocks in %.2f s", m.Name, r.Blocks(), time.Since(t0).Seconds())
+	s.logf("%s: read once, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
+	if stats.Area > 0 && stats.Min == stats.Max {
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
+	}
 	if opt.Valid != nil {
 		if err := s.timed("family clipped to the valid cells", func() error { return s.clip(opt.Valid) }); err != nil {
 			return err
@@ -110,7 +145,8 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	if stats.Area > 0 {
 		floor = float64(stats.FloorArea) / float64(stats.Area)
 	}
-	s.res.Models = append(s.res.Models, report.Model{Name: m.Name, Path: s.recordedPath(m.Path), ValueMin: stats.Min, ValueMax: stats.Max, FloorShare: floor})
+	m.ValueMin, m.ValueMax, m.FloorShare = stats.Min, stats.Max, floor
+	s.res.Models = append(s.res.Models, m)
 	if pv != nil {
 		s.res.Preview = s.preview(pv, stats)
 	}
@@ -131,6 +167,15 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		return out
 	}
 	nTest := len(mp.test)
+	gidx := s.globalTest()
+	testIDs := func(k int) (global, ids []int) {
+		for j, p := range s.points {
+			if p.Status == "scored" && p.Role == "test" && valid[j] && fam.Has(k, s.cell[j]) {
+				global, ids = append(global, gidx[j]), append(ids, p.ID)
+			}
+		}
+		return global, ids
+	}
 	for k, mem := range fam.Members {
 		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 		switch mem.Status {
@@ -161,10 +206,18 @@ func (s *session) scoreModel(i int, m namedPath) error {
 			continue
 		}
 		sc.Scored = true
-		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCBootSD = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCBootSD
+		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCSE
+		sc.AUCUnweightedSEDeLong = math.Sqrt(out.AUCUnweightedVarDeLong)
+		global, ids := testIDs(k)
+		sc.TestPointIDs, sc.Placements, sc.PlacementsUnweighted = ids, out.Placements, out.PlacementsUnweighted
 		for _, p := range out.PartialROC {
-			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
+			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
+				TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
+				Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
 				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
+		}
+		if sc.AUCBootSD, err = s.evaluator(m.Name, mem.ID, accs[k], test, global, out, set); err != nil {
+			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
 		}
 		for _, t := range out.Thresholds {
 			sc.Thresholds = append(sc.Thresholds, report.Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,
@@ -180,9 +233,9 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		}
 		s.res.Curves = append(s.res.Curves, cv)
 		s.res.Scores = append(s.res.Scores, sc)
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %.4f", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
-	s.logf("%s: scores on %d extents (bootstrap included) in %.2f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, accs, presence); err != nil {
 		return err
 	}
@@ -190,11 +243,15 @@ func (s *session) scoreModel(i int, m namedPath) error {
 	return nil
 }
 
-func firstRatio(sc report.Score) float64 {
-	if len(sc.PartialROC) == 0 {
-		return 0
+func finiteRange(lo, hi float64) bool {
+	return !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && !math.IsNaN(lo) && !math.IsNaN(hi) && !math.IsInf(hi-lo, 0)
+}
+
+func firstRatio(sc report.Score) string {
+	if len(sc.PartialROC) == 0 || !sc.PartialROC[0].Defined {
+		return "undefined"
 	}
-	return sc.PartialROC[0].Ratio
+	return fmt.Sprintf("%.4f", sc.PartialROC[0].Ratio)
 }
 
 // aucOf is the area-weighted Mann-Whitney AUC of presence values against
@@ -204,18 +261,7 @@ func firstRatio(sc report.Score) float64 {
 //
 // with exact areas from the accumulator's bins (Hanley & McNeil 1982).
 func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
-	if len(vals) == 0 || a.Area() == 0 {
-		return 0, false
-	}
-	sum := 0.0
-	for _, v := range vals {
-		below, equal, _, ok := a.AreaAt(v)
-		if !ok {
-			return 0, false
-		}
-		sum += float64(below) + float64(equal)/2
-	}
-	return sum / (float64(len(vals)) * float64(a.Area())), true
+	return a.AUCAgainst(vals)
 }
 
 // rings decomposes each nested chain: for consecutive members A inside B,
@@ -349,6 +395,9 @@ func (s *session) finishResults() error {
 	}
 	if s.res.Curves == nil {
 		s.res.Curves = []report.Curve{}
+	}
+	if err := s.paired(); err != nil {
+		return err
 	}
 	return report.Analyze(s.res)
 }

@@ -19,6 +19,8 @@ import (
 	"areasweep/cmd/inputs"
 	"areasweep/cmd/pass"
 	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
@@ -43,6 +45,12 @@ type session struct {
 	stage  string
 	valid  extent.Valid // nil until known: the family is then unclipped
 	nWarn  int          // family warnings already reported
+	// evals holds the paired-resample evaluator of every scored model x
+	// extent (paired.go).
+	evals map[[2]string]*metrics.Evaluator
+	// rawDegrees: the table's coordinates, declared projected, all lie in
+	// degree ranges.
+	rawDegrees bool
 }
 
 // recordedPath is the path written into results.json for an input: as
@@ -56,7 +64,12 @@ func (s *session) recordedPath(p string) string {
 	return p
 }
 
-type namedPath struct{ Name, Path string }
+// namedPath is a model raster by name; Null marks one the user gave as a
+// null (--null).
+type namedPath struct {
+	Name, Path string
+	Null       bool
+}
 
 // logf writes a line to the run log and, unless quiet, to stderr.
 func (s *session) logf(format string, args ...any) {
@@ -73,28 +86,41 @@ func (s *session) warn(msg string) {
 }
 
 // sweep runs the whole analysis described by o.
-func sweep(o *RunOptions) error {
+func sweep(o *RunOptions) error { return sweepInto(o, nil) }
+
+// sweepInto runs the analysis into d, an output directory already opened
+// (the demo's, which holds the generated inputs), or opens --out itself.
+// Everything that can be checked is checked before the output directory is
+// touched: the settings, every input file, the grids, the occurrences and
+// the memory the run needs.
+func sweepInto(o *RunOptions, d *outDir) error {
 	s := &session{o: o, log: &strings.Builder{}, res: &report.Results{
 		SchemaVersion: report.SchemaVersion,
 		Software:      report.Software{Name: "areasweep", Version: version},
 		Seed:          o.Seed,
 		Warnings:      []string{},
 	}}
-	stage, err := prepareOut(o.Out, o.Force)
-	if err != nil {
-		return err
+	setRunLog(s.log)
+	defer setRunLog(nil)
+	if d != nil {
+		defer d.abort() // nothing once finished
 	}
-	s.stage = stage
-	ok := false
 	start := time.Now()
-	defer func() {
-		if !ok {
-			os.RemoveAll(stage)
-		}
-	}()
 	if err := s.readInputs(); err != nil {
 		return err
 	}
+	if d == nil {
+		var err error
+		if d, err = openOut(o.Out, o.Force, o.inputPaths()); err != nil {
+			return err
+		}
+		defer d.abort()
+	}
+	if d.cleaned > 0 {
+		s.logf("removed %d staging folder(s) left in or beside %s by earlier runs that were stopped", d.cleaned, o.Out)
+	}
+	s.stage = d.Stage
+	stage := d.Stage
 	if err := s.buildFamily(); err != nil {
 		return err
 	}
@@ -103,12 +129,17 @@ func sweep(o *RunOptions) error {
 			return err
 		}
 		if err := writeAtomic(filepath.Join(stage, "extents.csv"), extentsCSV(s.res.Extents)); err != nil {
-			return err
+			return writeFailed(err)
 		}
 		fmt.Fprint(o.IO.Out, extentsTable(s.res.Extents))
 	} else {
 		for i, m := range s.models {
 			if err := s.scoreModel(i, m); err != nil {
+				return err
+			}
+		}
+		if !o.NoDistanceNull {
+			if err := s.scoreDistanceNull(len(s.models)); err != nil {
 				return err
 			}
 		}
@@ -121,37 +152,35 @@ func sweep(o *RunOptions) error {
 		if err := s.timed("results.json, scores.csv and omitted_points.gpkg written", func() error {
 			data, err := s.res.Encode()
 			if err != nil {
-				return err
+				return internal(err)
 			}
 			if err := writeAtomic(filepath.Join(stage, "results.json"), data); err != nil {
-				return err
+				return writeFailed(err)
 			}
 			if err := writeAtomic(filepath.Join(stage, "scores.csv"), scoresCSV(s.res)); err != nil {
-				return err
+				return writeFailed(err)
 			}
-			return writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res)
+			if err := writeOmittedGPKG(filepath.Join(stage, "omitted_points.gpkg"), s.res); err != nil {
+				return writeFailed(err)
+			}
+			return nil
 		}); err != nil {
 			return err
 		}
 		t0 := time.Now()
 		if err := report.Write(stage, s.res); err != nil {
-			return err
+			return writeFailed(err)
 		}
 		s.logf("report written in %.2f s", time.Since(t0).Seconds())
 	}
+	s.libraryMessages()
 	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(start).Seconds())
 	if err := writeAtomic(filepath.Join(stage, "run.log"), []byte(s.log.String())); err != nil {
+		return writeFailed(err)
+	}
+	if err := d.finish(); err != nil {
 		return err
 	}
-	if o.inputsDir != "" {
-		if err := os.Rename(o.inputsDir, filepath.Join(stage, "inputs")); err != nil {
-			return fmt.Errorf("move demo inputs: %w", err)
-		}
-	}
-	if err := finishOut(stage, o.Out); err != nil {
-		return err
-	}
-	ok = true
 	if o.ExtentsOnly {
 		fmt.Fprintf(o.IO.Out, "extents written to %s\n", filepath.Join(o.Out, "extents.gpkg"))
 	} else {
@@ -160,16 +189,47 @@ func sweep(o *RunOptions) error {
 	return nil
 }
 
+// writeFailed words an error while writing the outputs (exit 1).
+func writeFailed(err error) error {
+	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(errText(err)))
+}
+
+// libraryMessages moves the messages GDAL and its libraries raised outside
+// any call that reported them as errors into the run log (not the
+// terminal), one line each.
+func (s *session) libraryMessages() {
+	msgs, dropped := gdalmsg.Drain()
+	for _, m := range msgs {
+		s.log.WriteString(m.String() + "\n")
+	}
+	if dropped > 0 {
+		fmt.Fprintf(s.log, "library messages: %d more not kept\n", dropped)
+	}
+}
+
+// inputPaths lists every input file, for the --out check.
+func (o *RunOptions) inputPaths() []string {
+	p := []string{o.Study, o.Occurrences, o.Region, o.Ecoregions}
+	for _, m := range append(append([]string{}, o.Models...), o.Extra...) {
+		if _, path, err := inputs.ParseNamedPath(m); err == nil {
+			p = append(p, path)
+		}
+	}
+	return p
+}
+
 // writeFamily exports the (clipped) family: extents.gpkg and, when asked,
 // extents.tif.
 func (s *session) writeFamily() error {
 	if err := s.timed("extents.gpkg written", func() error {
 		return s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg"))
 	}); err != nil {
-		return err
+		return writeFailed(err)
 	}
 	if s.o.MembershipTIFF {
-		return s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif"))
+		if err := s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif")); err != nil {
+			return writeFailed(err)
+		}
 	}
 	return nil
 }
@@ -183,7 +243,14 @@ func (s *session) readInputs() error {
 		if err := mustExist("model "+name, path); err != nil {
 			return err
 		}
-		s.models = append(s.models, namedPath{name, path})
+		s.models = append(s.models, namedPath{Name: name, Path: path})
+	}
+	for _, m := range o.Nulls {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("null "+name, path); err != nil {
+			return err
+		}
+		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
 	}
 	for _, p := range []struct{ what, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
 		if p.path != "" {
@@ -219,6 +286,9 @@ func (s *session) readInputs() error {
 	g := s.grid
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
+	if err := s.checkMemory(); err != nil {
+		return err
+	}
 	if err := s.timed("occurrences read, placed and sampled", s.readPoints); err != nil {
 		return err
 	}
@@ -270,6 +340,14 @@ func (s *session) readPoints() error {
 		return badInput(err)
 	}
 	n := len(recs)
+	// Projected coordinates that all fit in degree ranges are most likely
+	// degrees given the wrong --occurrences-crs (used for a hint).
+	s.rawDegrees = !geographic
+	for _, r := range recs {
+		if math.Abs(r.X) > 180 || math.Abs(r.Y) > 90 {
+			s.rawDegrees = false
+		}
+	}
 	lons := make([]float64, n)
 	lats := make([]float64, n)
 	for i, r := range recs {
@@ -343,6 +421,7 @@ func (s *session) readPoints() error {
 	if !o.NoThin {
 		seen := map[[2]int]int{}
 		thinned := 0
+		var pairs []string
 		for i := range s.points {
 			p := &s.points[i]
 			if s.cell[i] < 0 {
@@ -352,13 +431,14 @@ func (s *session) readPoints() error {
 			if first, dup := seen[key]; dup {
 				p.Status = "thinned"
 				thinned++
-				s.logf("thinned: line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role)
+				pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role))
 				s.cell[i] = -1
 				continue
 			}
 			seen[key] = i
 		}
 		if thinned > 0 {
+			s.logf("thinned: %s", listSome(pairs, 10))
 			s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", thinned))
 		}
 	}
@@ -380,13 +460,38 @@ func (s *session) readPoints() error {
 		}
 	}
 	if c.Test == 0 {
-		return badInput(fmt.Errorf("%s: no test point falls on a valid cell of the raster; nothing can be scored", o.Occurrences))
+		return badInput(s.noTestPoint(r))
 	}
 	if c.Train == 0 {
 		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
 	}
 	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
 	return nil
+}
+
+// noTestPoint explains why no test point can be scored, blaming the input
+// that is at fault: a raster without data, points outside the raster (with
+// a hint when degrees were given a projected --occurrences-crs, or the
+// other way round), or test points on no-data cells.
+func (s *session) noTestPoint(r *pass.Raster) error {
+	o, c := s.o, s.res.PointCounts
+	if c.NoData > 0 {
+		if _, _, ok, err := r.ExactRange(); err == nil && !ok {
+			return fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", s.models[0].Name, pass.ErrNoData, r.Path)
+		}
+	}
+	msg := fmt.Sprintf("%s: no test point falls on a cell with data of %s (%s); nothing can be scored", o.Occurrences, s.models[0].Name, s.models[0].Path)
+	if c.OutsideRaster > 0 && c.NoData == 0 && c.Thinned == 0 {
+		msg = fmt.Sprintf("%s: every point lies outside the raster %s; nothing can be scored", o.Occurrences, s.models[0].Path)
+		if o.OccurrencesCRS != "" && s.rawDegrees {
+			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
+		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
+			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
+		} else {
+			msg += "; check that the points and the raster cover the same area"
+		}
+	}
+	return errors.New(msg)
 }
 
 func roleIndex(r string) int {
@@ -417,7 +522,11 @@ func (s *session) checksums() error {
 		return nil
 	}
 	for _, m := range s.models {
-		if err := add("model:"+m.Name, m.Path); err != nil {
+		role := "model:" + m.Name
+		if m.Null {
+			role = "null:" + m.Name
+		}
+		if err := add(role, m.Path); err != nil {
 			return err
 		}
 	}
@@ -497,12 +606,12 @@ func (s *session) buildFamily() error {
 	s.logf("building the extent family")
 	t0 := time.Now()
 	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
-	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
 	if err != nil {
 		// Every failure here comes from the region, point or polygon inputs
 		// or from settings asking for too many extents.
 		return badInput(err)
 	}
+	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
 	s.fam = fam
 	for _, w := range fam.Warnings {
 		s.warn(w)
@@ -520,7 +629,8 @@ func (s *session) buildFamily() error {
 		RegionBuffersKm: nonNil(o.RegionBuffers), PointBuffersKm: nonNil(spec.PointBuffersKm), PointBufferAll: o.PointBuffersAll,
 		HullBuffersKm: nonNil(spec.HullBuffersKm), EcoregionMinPoints: o.EcoregionMinPoints, EcoregionField: o.EcoregionField,
 		E: nonNil(o.E), Iterations: o.Iterations, ResampleFraction: o.Fraction, FixedThresholds: nonNil(o.Thresholds),
-		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100,
+		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100, PairedResamples: o.Iterations,
+		ToleranceAUC: o.ToleranceAUC, TolerancePartialROC: o.TolerancePartialROC, ToleranceOmission: o.ToleranceOmission, ToleranceBoyce: o.ToleranceBoyce,
 		EcoregionClip: o.EcoregionClip, OccurrencesCRS: o.OccurrencesCRS, Extra: []string{},
 	}
 	for _, m := range o.Extra {

@@ -119,6 +119,9 @@ const roleAdvice = "allowed values are train, training, test and testing (any ca
 // they are taken as given. See the package documentation for the accepted
 // layout and ParseOccurrences for the errors.
 func ReadOccurrences(path string, geographic bool) ([]Record, error) {
+	if err := checkRegular(path, "occurrence table"); err != nil {
+		return nil, err
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("inputs: cannot open occurrence table: %w", err)
@@ -144,7 +147,8 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
-	br := bufio.NewReader(r)
+	lim := newLimitedReader(r, name, MaxOccurrenceBytes, MaxLineBytes)
+	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)
 	} else if len(b) >= 2 && ((b[0] == 0xFF && b[1] == 0xFE) || (b[0] == 0xFE && b[1] == 0xFF)) {
@@ -168,7 +172,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			break
 		}
 		if err != nil {
-			return nil, fmt.Errorf("inputs: reading %s: %w", name, err)
+			return nil, tooLarge(err, perr, name)
 		}
 	}
 	if header == nil {
@@ -197,7 +201,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
 				}
-				return nil, 0, fmt.Errorf("inputs: reading %s: %w", name, err)
+				return nil, 0, tooLarge(err, perr, name)
 			}
 			if allBlank(rec) {
 				continue
@@ -250,7 +254,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			v, err := parseNumber(s, delim != ',')
 			if err != nil {
 				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; write the %s as a decimal number "+
-					"such as -12.5 (dot as decimal separator), or delete the line", ErrBadNumber, err, c.what))
+					"such as -12.5 (dot as decimal separator), or delete the line%s", ErrBadNumber, err, c.what, commaHint(delim, len(row), len(hdr))))
 			}
 			*c.dst = v
 		}
@@ -260,7 +264,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 		}
 		role, ok := parseRole(s)
 		if !ok {
-			return nil, perr(line, cols.role.name, fmt.Errorf("%w: found %q; %s", ErrBadRole, s, roleAdvice))
+			return nil, perr(line, cols.role.name, fmt.Errorf("%w: found %s; %s%s", ErrBadRole, shown(s), roleAdvice, commaHint(delim, len(row), len(hdr))))
 		}
 		rec.Role = role
 		recs = append(recs, rec)
@@ -292,6 +296,26 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// tooLarge turns a size-limit error from the reader into a ParseError
+// naming the file, and wraps other read errors.
+func tooLarge(err error, perr func(int, string, error) error, name string) error {
+	if errors.Is(err, ErrTooLarge) {
+		return perr(0, "", err)
+	}
+	return fmt.Errorf("inputs: reading %s: %w", name, err)
+}
+
+// commaHint explains a line with more cells than the header in a
+// comma-separated table: the usual cause is a decimal comma (12,5), which
+// splits a number into two cells.
+func commaHint(delim rune, cells, header int) string {
+	if delim != ',' || cells <= header {
+		return ""
+	}
+	return fmt.Sprintf(". The line has %d cells but the header only %d: in a comma-separated table a decimal comma (12,5) splits a number in two; "+
+		"write decimals with a dot, or save the table with semicolons as the delimiter (then 12,5 is read as 12.5)", cells, header)
 }
 
 // column is a header field found by name.
@@ -425,11 +449,11 @@ func parseNumber(s string, decimalComma bool) (float64, error) {
 		t = strings.Replace(t, ",", ".", 1)
 	}
 	if !isDecimal(t) {
-		return 0, fmt.Errorf("found %q", s)
+		return 0, fmt.Errorf("found %s", shown(s))
 	}
 	v, err := strconv.ParseFloat(t, 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, fmt.Errorf("found %q, which is out of range", s)
+		return 0, fmt.Errorf("found %s, which is out of range", shown(s))
 	}
 	return v, nil
 }

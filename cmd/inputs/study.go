@@ -20,7 +20,7 @@ import (
 // the file, a non-nil empty slice was given as an empty list. Keys are
 // exactly the long flag names of the command.
 //
-// Paths (the PATH part of model and extra, occurrences, region,
+// Paths (the PATH part of model, null and extra, occurrences, region,
 // ecoregions, out) are already resolved against the study file's directory.
 type Study struct {
 	Model              []string  `yaml:"model"` // "NAME=PATH"
@@ -44,6 +44,13 @@ type Study struct {
 	Out                *string   `yaml:"out"`
 	NoThin             *bool     `yaml:"no-thin"`
 	MembershipTIFF     *bool     `yaml:"membership-tif"`
+	Null               []string  `yaml:"null"` // "NAME=PATH"
+	NoDistanceNull     *bool     `yaml:"no-distance-null"`
+	// Tolerances of the equivalence verdicts.
+	ToleranceAUC        *float64 `yaml:"tolerance-auc"`
+	TolerancePartialROC *float64 `yaml:"tolerance-partial-roc"`
+	ToleranceOmission   *float64 `yaml:"tolerance-omission"`
+	ToleranceBoyce      *float64 `yaml:"tolerance-boyce"`
 }
 
 // studyKeys lists the accepted keys in the order of the Study fields.
@@ -51,7 +58,8 @@ var studyKeys = []string{
 	"model", "occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field",
 	"ecoregion-min-points", "ecoregion-clip", "extra", "region-buffers", "point-buffers",
 	"point-buffers-all", "hull-buffers", "e", "iterations", "fraction", "thresholds", "seed",
-	"out", "no-thin", "membership-tif",
+	"out", "no-thin", "membership-tif", "null", "no-distance-null",
+	"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce",
 }
 
 // StudyKeys returns the keys a study file may contain, which are also the
@@ -111,8 +119,19 @@ func (e *StudyError) Unwrap() error { return e.Err }
 // extra paths after '=', occurrences, region, ecoregions, out) are resolved
 // against the directory holding the study file.
 func LoadStudy(path string) (*Study, error) {
-	data, err := os.ReadFile(path)
+	if err := checkRegular(path, "study file"); err != nil {
+		return nil, err
+	}
+	f, err := os.Open(path)
 	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes, 0))
+	if err != nil {
+		if errors.Is(err, ErrTooLarge) {
+			return nil, &StudyError{File: path, Err: err}
+		}
 		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
 	}
 	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))
@@ -247,6 +266,10 @@ func (s *Study) set(key string, v *yaml.Node, dir string) error {
 	switch key {
 	case "model":
 		s.Model, err = namedPaths(key, v, dir)
+	case "null":
+		s.Null, err = namedPaths(key, v, dir)
+	case "no-distance-null":
+		s.NoDistanceNull, err = boolValue(key, v)
 	case "extra":
 		s.Extra, err = namedPaths(key, v, dir)
 	case "occurrences":
@@ -285,6 +308,14 @@ func (s *Study) set(key string, v *yaml.Node, dir string) error {
 		s.Thresholds, err = floatList(key, v)
 	case "fraction":
 		s.Fraction, err = floatValue(key, v)
+	case "tolerance-auc":
+		s.ToleranceAUC, err = floatValue(key, v)
+	case "tolerance-partial-roc":
+		s.TolerancePartialROC, err = floatValue(key, v)
+	case "tolerance-omission":
+		s.ToleranceOmission, err = floatValue(key, v)
+	case "tolerance-boyce":
+		s.ToleranceBoyce, err = floatValue(key, v)
 	case "seed":
 		s.Seed, err = uintValue(key, v)
 	default:
@@ -629,6 +660,12 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 		}
 		return []string{strconv.Itoa(*p)}, true
 	}
+	float := func(p *float64) ([]string, bool) {
+		if p == nil {
+			return nil, false
+		}
+		return []string{f(*p)}, true
+	}
 	list := func(l []float64) ([]string, bool) {
 		if l == nil {
 			return nil, false
@@ -642,6 +679,10 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 	switch key {
 	case "model":
 		return s.Model, s.Model != nil
+	case "null":
+		return s.Null, s.Null != nil
+	case "no-distance-null":
+		return boolean(s.NoDistanceNull)
 	case "extra":
 		return s.Extra, s.Extra != nil
 	case "occurrences":
@@ -679,10 +720,15 @@ func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) 
 	case "thresholds":
 		return list(s.Thresholds)
 	case "fraction":
-		if s.Fraction == nil {
-			return nil, false
-		}
-		return []string{f(*s.Fraction)}, true
+		return float(s.Fraction)
+	case "tolerance-auc":
+		return float(s.ToleranceAUC)
+	case "tolerance-partial-roc":
+		return float(s.TolerancePartialROC)
+	case "tolerance-omission":
+		return float(s.ToleranceOmission)
+	case "tolerance-boyce":
+		return float(s.ToleranceBoyce)
 	case "seed":
 		if s.Seed == nil {
 			return nil, false

@@ -22,6 +22,9 @@ const fullStudy = `# a complete study
 model:
   - gbm=models/gbm.tif
   - glm=/abs/glm.tif
+null:
+  - effort=effort.tif
+no-distance-null: false
 occurrences: occ/points.csv
 occurrences-crs: EPSG:32633
 region: region.gpkg
@@ -43,12 +46,18 @@ seed: 18446744073709551615
 out: results
 no-thin: true
 membership-tif: false
+tolerance-auc: 0.03
+tolerance-partial-roc: 0.1
+tolerance-omission: 0.04
+tolerance-boyce: 0.2
 `
 
 func fullStudyWant(dir string) *Study {
 	j := func(p string) string { return filepath.Join(dir, p) }
 	return &Study{
 		Model:              []string{"gbm=" + j("models/gbm.tif"), "glm=/abs/glm.tif"},
+		Null:               []string{"effort=" + j("effort.tif")},
+		NoDistanceNull:     ptr(false),
 		Occurrences:        ptr(j("occ/points.csv")),
 		OccurrencesCRS:     ptr("EPSG:32633"),
 		Region:             ptr(j("region.gpkg")),
@@ -69,6 +78,11 @@ func fullStudyWant(dir string) *Study {
 		Out:                ptr(j("results")),
 		NoThin:             ptr(true),
 		MembershipTIFF:     ptr(false),
+
+		ToleranceAUC:        ptr(0.03),
+		TolerancePartialROC: ptr(0.1),
+		ToleranceOmission:   ptr(0.04),
+		ToleranceBoyce:      ptr(0.2),
 	}
 }
 
@@ -381,6 +395,7 @@ func newFlags() *cobra.Command {
 	cmd := &cobra.Command{Use: "t"}
 	fs := cmd.Flags()
 	fs.StringArray("model", nil, "")
+	fs.StringArray("null", nil, "")
 	fs.StringArray("extra", nil, "")
 	for _, k := range []string{"occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field", "out"} {
 		fs.String(k, "", "")
@@ -388,7 +403,7 @@ func newFlags() *cobra.Command {
 	fs.String("ecoregion-crs-unused", "", "")
 	fs.Int("ecoregion-min-points", 1, "")
 	fs.Int("iterations", 500, "")
-	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif"} {
+	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif", "no-distance-null"} {
 		fs.Bool(k, false, "")
 	}
 	for _, k := range []string{"region-buffers", "point-buffers", "hull-buffers", "e"} {
@@ -396,6 +411,9 @@ func newFlags() *cobra.Command {
 	}
 	fs.Float64Slice("thresholds", []float64{0}, "")
 	fs.Float64("fraction", 0.5, "")
+	for _, k := range []string{"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce"} {
+		fs.Float64(k, 0.01, "")
+	}
 	fs.Uint64("seed", 1, "")
 	return cmd
 }
@@ -431,6 +449,9 @@ func TestApply(t *testing.T) {
 			uint64(18446744073709551615), "/b/region.gpkg", "EPSG:32633", 3)
 		if got != want {
 			t.Fatalf("flags after Apply\n got %s\nwant %s", got, want)
+		}
+		if tb, _ := fs.GetFloat64("tolerance-boyce"); tb != 0.2 {
+			t.Errorf("tolerance-boyce after Apply = %v, want 0.2 from the study", tb)
 		}
 		// The list text round-trips through ParseFloatList.
 		l, err := ParseFloatList("region-buffers", rb)

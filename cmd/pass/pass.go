@@ -1,15 +1,18 @@
 package pass
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
+	"runtime/debug"
 	"sync"
 	"sync/atomic"
 
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
 	"areasweep/metrics"
 )
 
@@ -17,6 +20,15 @@ import (
 // sum: 1/4096 m^2, so that the whole Earth (5.1e14 m^2) is 2.1e18 units,
 // inside int64, while a 30 m cell keeps 7 significant digits.
 const AreaUnitsPerKm2 = 1e6 * 4096
+
+// InternalError is an error of the pass that is a bug, not a problem of
+// the raster: a worker that failed, or sums that would not merge.
+type InternalError struct{ Err error }
+
+func (e *InternalError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the underlying error.
+func (e *InternalError) Unwrap() error { return e.Err }
 
 // Raster is an open single-band model raster.
 type Raster struct {
@@ -36,7 +48,7 @@ type Raster struct {
 
 // Source fills blocks of stored values for one worker of a pass. A GDAL
 // band is one (each worker opens its own dataset handle); a value field
-// computed on the fly can be another.
+// computed on the fly (Virtual) is another.
 type Source interface {
 	// ReadBlock fills buf[:w*h], row by row, with the stored values of
 	// the w x h cells whose top-left cell is column x0, row y0.
@@ -47,6 +59,7 @@ type Source interface {
 
 // gdalSource reads band 1 of its own handle on a raster file.
 type gdalSource struct {
+	path string
 	ds   *godal.Dataset
 	band godal.Band
 }
@@ -54,13 +67,21 @@ type gdalSource struct {
 func openGDALSource(path string) (Source, error) {
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
-		return nil, fmt.Errorf("pass: reopen %s: %w", path, err)
+		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
-	return &gdalSource{ds: ds, band: ds.Bands()[0]}, nil
+	bands := ds.Bands()
+	if len(bands) == 0 {
+		ds.Close()
+		return nil, fmt.Errorf("pass: %s has no band", path)
+	}
+	return &gdalSource{path: path, ds: ds, band: bands[0]}, nil
 }
 
 func (s *gdalSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
-	return s.band.Read(x0, y0, buf[:w*h], w, h)
+	if err := s.band.Read(x0, y0, buf[:w*h], w, h); err != nil {
+		return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, x0, y0, gdalmsg.Cause(err.Error()))
+	}
+	return nil
 }
 
 func (s *gdalSource) Close() error { return s.ds.Close() }
@@ -70,7 +91,7 @@ func Open(path string) (*Raster, error) {
 	extent.Register()
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
-		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read: %w", path, err)
+		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
 	bands := ds.Bands()
 	if len(bands) == 0 {
@@ -121,7 +142,7 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 			continue
 		}
 		if err := r.band.Read(c%g.Width, c/g.Width, buf, 1, 1); err != nil {
-			return nil, nil, fmt.Errorf("pass: read %s at column %d row %d: %w", r.Path, c%g.Width, c/g.Width, err)
+			return nil, nil, fmt.Errorf("pass: %s: the cell at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, c%g.Width, c/g.Width, gdalmsg.Cause(err.Error()))
 		}
 		r.decode(buf)
 		vals[i], ok[i] = buf[0], r.valid(buf[0])
@@ -129,21 +150,9 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	return vals, ok, nil
 }
 
-// ApproxRange returns GDAL's approximate minimum and maximum of the band
-// (from overviews or a sample of blocks), in model values: the range of the
-// fine histogram.
-// It does not need a full read.
-func (r *Raster) ApproxRange() (lo, hi float64, err error) {
-	st, err := r.band.ComputeStatistics(godal.Approximate())
-	if err != nil {
-		return 0, 0, fmt.Errorf("pass: statistics of %s: %w", r.Path, err)
-	}
-	lo, hi = st.Min*r.scale+r.offset, st.Max*r.scale+r.offset
-	if lo > hi {
-		lo, hi = hi, lo
-	}
-	return lo, hi, nil
-}
+// ErrNoData is returned when a raster has no cell with data (ExactRange
+// finds no valid value).
+var ErrNoData = errors.New("pass: the raster has no cell with data")
 
 // block is one block of cells read from the raster.
 type block struct {
@@ -161,7 +170,7 @@ func (r *Raster) each(out chan<- block, free chan []float64) error {
 		buf := <-free
 		buf = buf[:b.W*b.H]
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
+			return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, b.X0, b.Y0, gdalmsg.Cause(err.Error()))
 		}
 		out <- block{b.X0, b.Y0, b.W, b.H, buf}
 	}
@@ -288,6 +297,23 @@ type Options struct {
 	// some extent, so that the first model's pass also yields the cells the
 	// family is clipped to (no separate read).
 	Valid extent.Valid
+	// Rows, when set, sees every row of every block that holds a cell of
+	// some member, once its values are known: the row, its first column,
+	// the values (NaN: no value) and the cells' integer area weights.
+	// Which member holds a cell the caller asks the family (Family.Span,
+	// Family.Has). It is called from the workers at once and must not keep
+	// the slices.
+	Rows func(row, c0 int, vals []float64, weights []int64)
+}
+
+// plan is what a pass needs of a model: its size and block layout, a
+// Source for each worker, and how stored values become model values.
+type plan struct {
+	width, height, blockW, blockH int
+	open                          func() (Source, error)
+	// decode turns stored values into model values in place, NaN for no
+	// value.
+	decode func(buf []float64)
 }
 
 // Score streams the raster once and returns one accumulator per family
@@ -300,15 +326,23 @@ type Options struct {
 // of the sequence that holds it, and after the pass the accumulators are
 // merged up each sequence. Every sum is an integer, so the result is the
 // same for any number of workers and any block order.
+//
+// A worker that panics (a bug) makes the pass return an *InternalError.
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
+	return score(plan{width: r.width, height: r.height, blockW: r.blockW, blockH: r.blockH, open: r.open, decode: r.decode},
+		g, fam, fam.Groups(), layout, opt)
+}
+
+// score is one streaming pass over the blocks of p (see Raster.Score);
+// groups is fam.Groups().
+func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	n := len(fam.Members)
-	groups := fam.Groups()
-	nx := (r.width + r.blockW - 1) / r.blockW
-	total := r.Blocks()
+	nx := (p.width + p.blockW - 1) / p.blockW
+	total := nx * ((p.height + p.blockH - 1) / p.blockH)
 	type partial struct {
 		accs  []*metrics.Accumulator
 		stats Stats
@@ -326,16 +360,25 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 		}
 		parts[w].accs = accs
 		wg.Add(1)
-		go func(p *partial) {
+		go func(pt *partial) {
 			defer wg.Done()
-			src, err := r.open()
+			defer func() {
+				// A bug in a worker becomes an error of the pass instead of
+				// killing the process; the other workers stop at their
+				// next block.
+				if v := recover(); v != nil {
+					pt.err = &InternalError{fmt.Errorf("pass: internal error in a scoring worker: %v\n%s", v, debug.Stack())}
+					failed.Store(true)
+				}
+			}()
+			src, err := p.open()
 			if err != nil {
-				p.err = err
+				pt.err = err
 				failed.Store(true)
 				return
 			}
 			defer src.Close()
-			ws := newWorkerState(r.blockW, r.blockH)
+			ws := newWorkerState(p.blockW, p.blockH)
 			// Statistics stay local until the end: workers' partials sit
 			// side by side in memory and per-cell writes would share cache lines.
 			var st Stats
@@ -344,18 +387,19 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 				if i >= total {
 					break
 				}
-				x0, y0 := (i%nx)*r.blockW, (i/nx)*r.blockH
-				b := block{x0: x0, y0: y0, w: min(r.blockW, r.width-x0), h: min(r.blockH, r.height-y0)}
+				x0, y0 := (i%nx)*p.blockW, (i/nx)*p.blockH
+				b := block{x0: x0, y0: y0, w: min(p.blockW, p.width-x0), h: min(p.blockH, p.height-y0)}
 				b.buf = ws.buf[:b.w*b.h]
 				if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
-					p.err = fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.x0, b.y0, err)
+					pt.err = err
 					failed.Store(true)
 					break
 				}
-				r.scoreBlock(g, fam, groups, layout, b, p.accs, &st, ws, opt.Preview, opt.Valid)
+				p.decode(b.buf)
+				scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt)
 				doneBlocks <- struct{}{}
 			}
-			p.stats = st
+			pt.stats = st
 		}(&parts[w])
 	}
 	go func() { wg.Wait(); close(doneBlocks) }()
@@ -376,7 +420,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	for w := 1; w < workers; w++ {
 		for k := range out {
 			if err := out[k].Merge(parts[w].accs[k]); err != nil {
-				return nil, Stats{}, fmt.Errorf("pass: internal: %w", err)
+				return nil, Stats{}, &InternalError{fmt.Errorf("pass: merging the workers' sums: %w", err)}
 			}
 		}
 		stats.merge(parts[w].stats)
@@ -386,7 +430,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	for _, seq := range groups {
 		for j := 1; j < len(seq); j++ {
 			if err := out[seq[j]].Merge(out[seq[j-1]]); err != nil {
-				return nil, Stats{}, fmt.Errorf("pass: internal: %w", err)
+				return nil, Stats{}, &InternalError{fmt.Errorf("pass: merging the sums up a nested sequence: %w", err)}
 			}
 		}
 	}
@@ -409,10 +453,32 @@ func newWorkerState(bw, bh int) *workerState {
 		bins: make([]int32, bw), hists: make([]int32, bw), in: make([]bool, bw)}
 }
 
-// scoreBlock adds every valid cell of b to the accumulators of the
-// smallest member of each group holding it.
-func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, pv *Preview, valid extent.Valid) {
-	r.decode(b.buf)
+// RowWeights fills weights (length c1-c0) with the integer area units of
+// cells c0 <= c < c1 of row, the weights the pass adds, using areas as
+// scratch, and returns both.
+func RowWeights(g *extent.Grid, row, c0, c1 int, areas []float64, weights []int64) ([]float64, []int64) {
+	areas = g.RowAreasRange(row, c0, c1, areas)
+	if cap(weights) < len(areas) {
+		weights = make([]int64, len(areas))
+	}
+	weights = weights[:len(areas)]
+	lastA, lastW := -1.0, int64(0)
+	for x, a := range areas {
+		if a != lastA { // constant along rows of most grids
+			lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
+		}
+		weights[x] = lastW
+	}
+	return areas, weights
+}
+
+// valid reports whether a decoded value is one to score.
+func valid(v float64) bool { return !math.IsNaN(v) }
+
+// scoreBlock adds every valid cell of b (decoded) to the accumulators of
+// the smallest member of each group holding it.
+func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) {
+	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
 	weights, bins, hists, in := ws.weights[:b.w], ws.bins[:b.w], ws.hists[:b.w], ws.in[:b.w]
 	for y := 0; y < b.h; y++ {
@@ -422,7 +488,7 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, 
 		if pv != nil {
 			if prow := pv.srcRow[row]; prow >= 0 {
 				for x, v := range vals {
-					if pc := pv.srcCol[b.x0+x]; pc >= 0 && r.valid(v) {
+					if pc := pv.srcCol[b.x0+x]; pc >= 0 && valid(v) {
 						pv.Values[prow*pv.Width+pc] = v
 					}
 				}
@@ -443,28 +509,24 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, 
 		if !covered {
 			continue
 		}
-		ws.areas = g.RowAreasRange(row, b.x0, x1, ws.areas)
-		lastA, lastW := -1.0, int64(0)
-		for x, a := range ws.areas {
-			if a != lastA { // constant along rows of most grids
-				lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
-			}
-			weights[x] = lastW
+		ws.areas, weights = RowWeights(g, row, b.x0, x1, ws.areas, weights)
+		if opt.Rows != nil {
+			opt.Rows(row, b.x0, vals, weights)
 		}
 		vword, vbits := -1, uint64(0)
 		for x, v := range vals {
 			bins[x] = -1
-			if !in[x] || !r.valid(v) {
+			if !in[x] || !valid(v) {
 				continue
 			}
-			if valid != nil {
+			if validCells != nil {
 				// Bits are gathered per 64-bit word and set with one
 				// atomic OR per word (blocks of other workers may share
 				// the word at their edges).
 				i := base + x
 				if i>>6 != vword {
 					if vbits != 0 {
-						valid.OrAtomic(vword, vbits)
+						validCells.OrAtomic(vword, vbits)
 					}
 					vword, vbits = i>>6, 0
 				}
@@ -488,7 +550,7 @@ func (r *Raster) scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, 
 			bins[x], hists[x] = int32(bin), int32(hist)
 		}
 		if vbits != 0 {
-			valid.OrAtomic(vword, vbits)
+			validCells.OrAtomic(vword, vbits)
 		}
 		for _, seq := range groups {
 			inner := -1

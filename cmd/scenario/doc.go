@@ -48,7 +48,7 @@
 //     levels only.
 //
 // Because the base region is small and the continent holds much unsuitable
-// land far from it, the full AUC of a model rises as the calibration extent
+// land far from it, the full AUC of a model rises as the evaluation extent
 // grows, although nothing about the model changes: the effect areasweep
 // exists to expose.
 package scenario

@@ -1,5 +1,5 @@
 // Package geodesy provides geodesic computations on the WGS84 ellipsoid for
-// building calibration extents: distances, azimuths and forward positions,
+// building evaluation extents: distances, azimuths and forward positions,
 // geodesic polygon areas, exact areas of latitude-longitude raster cells,
 // densified geodesic lines, and an exact nearest-site index.
 //

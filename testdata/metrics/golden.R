@@ -10,6 +10,10 @@
 #                          0.20. pROC's x axis is specificity = 1 - x, so
 #                          this is the area right of our area-ROC curve
 #                          inside the band 1-E <= y <= 1 (A_band).
+#   quantity "delong_var": pROC var(roc, method = "delong"), the DeLong,
+#                          DeLong & Clarke-Pearson (1988) variance of the
+#                          AUC with every (replicated) background row a
+#                          sampled cell, counted once
 # pROC has no case weights, so integer weights are honoured by replicating
 # background rows. Deterministic: no randomness is used.
 suppressPackageStartupMessages(library(pROC))
@@ -28,6 +32,9 @@ for (name in unique(cases$case)) {
   presences <- as.numeric(d$value[d$role == "test"])
   r <- roc(controls = controls, cases = presences, direction = "<", quiet = TRUE)
   out[nrow(out) + 1, ] <- c(name, "auc", "0", sprintf("%.17g", as.numeric(auc(r))))
+  if (length(presences) >= 2) {
+    out[nrow(out) + 1, ] <- c(name, "delong_var", "0", sprintf("%.17g", var(r, method = "delong")))
+  }
   for (e in c(0.05, 0.10, 0.20)) {
     p <- auc(r, partial.auc = c(1, 1 - e), partial.auc.focus = "sensitivity",
              partial.auc.correct = FALSE)

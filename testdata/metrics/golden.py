@@ -5,6 +5,12 @@ Writes, beside this script:
   cases.csv           background cells and presences of the test cases
                       (case,role,value,weight; role bg/test/train; integer
                       values so every reader parses them exactly)
+  paired_golden.json  placements, their standard errors and paired
+                      differences (between two extents of one model and
+                      between two models on one extent) on area-weighted
+                      cases, written out with numpy independently of the Go
+                      code (DeLong, DeLong & Clarke-Pearson 1988 presence
+                      component; background as the complete population)
   sklearn_golden.json AUCs from sklearn.metrics.roc_auc_score, binomial tails
                       from scipy.stats.binom.sf, Spearman correlations from
                       scipy.stats.spearmanr, percentiles from numpy.percentile
@@ -53,6 +59,16 @@ def generated(seed, ncells, ntest, ntrain, vmax, wmax, shift):
     return bg_v.tolist(), bg_w.tolist(), test.tolist(), train.tolist()
 
 
+def continuous(seed, ncells, ntest, ntrain, vmax, wmax, shift):
+    """Like generated, but presences are drawn fresh (ties are rare)."""
+    rng = np.random.default_rng(seed)
+    bg_v = rng.integers(0, vmax + 1, size=ncells)
+    bg_w = rng.integers(1, wmax + 1, size=ncells)
+    test = np.clip(rng.integers(0, vmax + 1, size=ntest) + shift, 0, vmax)
+    train = np.clip(rng.integers(0, vmax + 1, size=ntrain) + shift, 0, vmax)
+    return bg_v.tolist(), bg_w.tolist(), test.tolist(), train.tolist()
+
+
 CASES = {
     "hanley_mcneil_1982": hanley_mcneil(),
     "tiny": ([0, 1, 2], [1, 2, 3], [1, 2], [2]),
@@ -61,7 +77,64 @@ CASES = {
     "weights_one": generated(13, 500, 80, 60, 50, 1, 10),
     "below_extent": ([10, 11, 12, 13], [1, 1, 1, 1], [2, 3, 12, 13, 13], [12]),
     "large": generated(14, 5000, 200, 300, 1_000_000, 20, 150_000),
+    "continuous_a": continuous(15, 300, 40, 20, 1_000_000, 9, 200_000),
+    "continuous_b": continuous(16, 800, 25, 20, 1_000_000, 30, 50_000),
+    "continuous_c": continuous(17, 150, 90, 20, 1_000_000, 5, 300_000),
 }
+
+
+def placements(vals, w, pres):
+    """V_i = (W(< v_i) + W(= v_i)/2) / W, written out per presence."""
+    vals = np.asarray(vals, float)
+    w = np.asarray(w, float)
+    tot = w.sum()
+    return np.array([(w[vals < p].sum() + w[vals == p].sum() / 2) / tot for p in pres])
+
+
+def paired(d):
+    """Mean, SE = sqrt(sum (d - mean)^2 / (n (n - 1))) of paired differences."""
+    d = np.asarray(d, float)
+    n = len(d)
+    m = d.mean()
+    return float(m), float(np.sqrt(((d - m) ** 2).sum() / (n * (n - 1))))
+
+
+def paired_cases():
+    """Two models on a shared background with area weights, an outer extent
+    (every cell) and an inner extent (a random half), and test points on
+    cells (a presence's own cell is part of the background)."""
+    rng = np.random.default_rng(31)
+    out = []
+    for name, k, n, vmax in [("small", 60, 12, 20), ("medium", 400, 50, 1000), ("ties", 300, 40, 8),
+                             ("large_weights", 500, 80, 100000)]:
+        w = rng.integers(1, 50, size=k)
+        if name == "large_weights":
+            w = rng.integers(1, 2**40, size=k)
+        a = rng.integers(0, vmax + 1, size=k)
+        b = np.clip(a + rng.integers(-(vmax // 4) - 1, vmax // 4 + 2, size=k), 0, vmax)
+        inner = rng.random(k) < 0.5
+        pts = rng.choice(k, size=n, replace=False)
+        case = {"name": name, "weights": w.tolist(), "a": a.tolist(), "b": b.tolist(),
+                "inner": [int(x) for x in inner], "points": pts.tolist()}
+        res = {}
+        for model, vals in (("a", a), ("b", b)):
+            for ext, mask in (("outer", np.ones(k, bool)), ("inner", inner)):
+                ins = [i for i in range(n) if mask[pts[i]]]
+                v = placements(vals[mask], w[mask], vals[pts[ins]])
+                m = float(v.mean())
+                res[model + "/" + ext] = {"points": ins, "placements": v.tolist(), "auc": m,
+                                          "se": float(np.sqrt(((v - m) ** 2).sum() / (len(v) * (len(v) - 1))))}
+        # inner minus outer for model a, on the points inside inner
+        ins = res["a/inner"]["points"]
+        outer_v = dict(zip(res["a/outer"]["points"], res["a/outer"]["placements"]))
+        d = [vi - outer_v[i] for i, vi in zip(ins, res["a/inner"]["placements"])]
+        case["extent_diff"] = dict(zip(("diff", "se"), paired(d)))
+        for ext in ("outer", "inner"):
+            d = np.array(res["a/" + ext]["placements"]) - np.array(res["b/" + ext]["placements"])
+            case["model_diff_" + ext] = dict(zip(("diff", "se"), paired(d)))
+        case["scores"] = res
+        out.append(case)
+    return out
 
 
 def our_auc(bg_v, bg_w, pres):
@@ -167,6 +240,10 @@ def main():
         "spearman": spear,
         "quantile": quants,
     }
+    with open(os.path.join(HERE, "paired_golden.json"), "w") as f:
+        json.dump({"generator": "testdata/metrics/golden.py", "numpy": np.__version__,
+                   "cases": paired_cases()}, f, indent=1, sort_keys=True)
+        f.write("\n")
     with open(os.path.join(HERE, "sklearn_golden.json"), "w") as f:
         json.dump(out, f, indent=1, sort_keys=True)
         f.write("\n")

@@ -20,11 +20,19 @@ tests are mutually consistent the way a real run's are:
     chain "region", two point buffers forming the chain "points", the convex
     hull of the training points, the whole raster), one empty and one
     duplicate member;
-  * area-weighted AUC (ties count one half), partial ROC ratios with a
-    bootstrap of the test points, threshold omission with the one-sided
+  * area-weighted AUC (ties count one half) with each test point's placement
+    and the placement SE (presence component of DeLong et al. 1988), DeLong's
+    full variance of the unweighted AUC, partial ROC ratios (undefined when
+    the 1-E crossing falls among tied test points) with the published
+    half-size bootstrap of the test points, threshold omission with the one-sided
     binomial test, a continuous Boyce index (Spearman rho of the P/E curve),
     ROC curves on the area axis, rings of the nested chains and a coarse
-    preview with extent masks.
+    preview with extent masks;
+  * paired differences: every extent minus the base extent per model, and
+    every pair of models per extent, on the common test points: AUCs from
+    the placements (normal 95% interval), the other scores from one set of
+    full-size resamples of all test points shared by every comparison
+    (2.5-97.5 percentiles).
 
 Deterministic: numpy.random.default_rng(20240611). Run through regen.sh.
 """
@@ -216,16 +224,51 @@ def curve(pv, bv, bw):
     return np.array(xs), np.array(ys)
 
 
-def proc_ratio(pv, bv, bw, e):
-    x, y = curve(pv, bv, bw)
-    k = np.argmax(y >= 1 - e - 1e-12)
-    xe = x[k]
+def proc_full(pv, bv, bw, e, orig=None):
+    """Partial ROC ratio with the tie rule: (ratio or None, x_E, tied, reason).
+
+    The exact curve on the area axis has, for each distinct presence value u
+    (descending), the vertices A = (x(>u), y(>u)) and B = (x(>=u), y(>=u)).
+    The crossing of y = 1-E is interpolated along the A->B segment that
+    reaches it; when two or more distinct original presences share u and
+    the crossing is strictly inside that segment, the ratio is undefined.
+    """
+    orig = pv if orig is None else orig
+    n = len(pv)
+    tot = bw.sum()
+    tau = (1 - e) * n
+    if abs(tau - round(tau)) <= 1e-9 * max(1, tau):
+        tau = round(tau)
+    verts = []
+    ya = 0
+    cross = None
+    for t in np.unique(pv)[::-1]:
+        c = int((pv == t).sum())
+        yb = ya + c
+        xa = float(bw[bv > t].sum() / tot)
+        xb = float(bw[bv >= t].sum() / tot)
+        if cross is None and yb >= tau:
+            s_ = (tau - ya) / c
+            xe = xb if s_ >= 1 else xa + s_ * (xb - xa)
+            tied = int((orig == t).sum())
+            cross = (xe, s_, tied)
+            verts = [(xe, tau / n), (xb, yb / n)]
+        elif cross is not None:
+            verts += [(xa, ya / n), (xb, yb / n)]
+        ya = yb
+    xe, s_, tied = cross
     if xe >= 1.0:
-        return None
-    xs, ys = x[k:], y[k:]
-    pauc = float(np.sum((xs[1:] - xs[:-1]) * (ys[1:] + ys[:-1]) / 2))
-    null = (1 - xe ** 2) / 2
-    return pauc / null
+        return None, xe, 0, "null"
+    if 0 < s_ < 1 and tied >= 2:
+        return None, xe, tied, "tie"
+    verts.append((1.0, 1.0))
+    pauc = sum((verts[i + 1][0] - verts[i][0]) * (verts[i + 1][1] + verts[i][1]) / 2 for i in range(len(verts) - 1))
+    return pauc / ((1 - xe ** 2) / 2), xe, 0, ""
+
+
+def proc_ratio(pv, bv, bw, e, orig=None):
+    r, _, _, _ = proc_full(pv, bv, bw, e, orig)
+    return r
 
 
 def full_curve(pv, bv, bw):
@@ -269,8 +312,47 @@ def boyce(pv, bv, bw):
             "window_mid": [round(v, 9) for v in mid_used], "pe_ratio": [round(v, 9) for v in ratio]}
 
 
+def MKEY(name):
+    return "omission_" + name + ("_%g" % FIXED[0] if name == "fixed" else "")
+
+
 def r12(v):
     return round(float(v), 12)
+
+
+PAIRED_B = 100
+TOL = {"auc": 0.02, "partial_roc": 0.05, "omission": 0.05, "boyce": 0.1}
+# One set of full-size resamples of all test points, shared by every
+# comparison: counts[b, g] = times test point g is drawn in resample b.
+prng = np.random.default_rng(777)
+COUNTS = np.array([np.bincount(prng.integers(0, len(test), size=len(test)), minlength=len(test))
+                   for _ in range(PAIRED_B)])
+EV = {}
+
+
+def delong_var(Fu, pv, bv):
+    """DeLong et al. (1988) variance of the unweighted AUC, cells a sample."""
+    m, N = len(pv), len(bv)
+    theta = Fu.mean()
+    v01 = np.array([((pv > y).sum() + 0.5 * (pv == y).sum()) / m for y in bv])
+    return float(((Fu - theta) ** 2).sum() / (m - 1) / m + ((v01 - theta) ** 2).sum() / (N - 1) / N)
+
+
+def discrete(pv, bv, bw, e):
+    """Reading at thresholds only for a tie crossing: x_E at the tied value."""
+    n = len(pv)
+    tau = (1 - e) * n
+    for t in np.unique(pv)[::-1]:
+        if (pv >= t).sum() >= tau:
+            xe = float(bw[bv >= t].sum() / bw.sum())
+            if xe >= 1:
+                return False, xe, 0.0
+            x, y = full_curve(pv, bv, bw)
+            keep = x >= xe
+            xs, ys = x[keep], y[keep]
+            pauc = float(np.sum((xs[1:] - xs[:-1]) * (ys[1:] + ys[:-1]) / 2))
+            return True, xe, pauc / ((1 - xe ** 2) / 2)
+    return False, 1.0, 0.0
 
 
 scores, curves, omissions = [], [], []
@@ -315,24 +397,39 @@ for name, M in MODELS:
         ins_te = np.array([m[q["row"], q["col"]] for q in test])
         ins_tr = np.array([m[q["row"], q["col"]] for q in train])
         pv, ptr = tev[ins_te], trv[ins_tr]
+        gi = np.where(ins_te)[0]
         F = auc_pf(pv, bv, bw)
+        Fu = auc_pf(pv, bv, np.ones_like(bw))
         auc = float(F.mean())
-        auc_unw = float(auc_pf(pv, bv, np.ones_like(bw)).mean())
+        auc_unw = float(Fu.mean())
+        auc_se = float(np.sqrt(((F - auc) ** 2).sum() / (len(F) * (len(F) - 1))))
+        own = COUNTS[:, gi]
+        used = own.sum(axis=1) > 0
+        paired_auc = (own[used] * F).sum(axis=1) / own[used].sum(axis=1)
         auc_tr = float(auc_pf(ptr, bv, bw).mean())
         nres = int(math.ceil(FRAC * len(pv)))
         draws = [rng.integers(0, len(pv), size=nres) for _ in range(ITER)]
-        boot_auc = np.array([F[d].mean() for d in draws])
         prs = []
         for e in E_LIST:
-            full = proc_ratio(pv, bv, bw, e)
-            rs = [proc_ratio(pv[d], bv, bw, e) for d in draws]
+            full, xe, tied, why = proc_full(pv, bv, bw, e)
+            rs = [proc_ratio(pv[d], bv, bw, e, orig=pv) for d in draws]
             ok = np.array([r for r in rs if r is not None])
-            prs.append({"e": e, "ratio": r12(full if full is not None else 0),
-                        "ratio_mean": r12(ok.mean()), "ratio_sd": r12(ok.std(ddof=1)),
-                        "ci_low": r12(np.percentile(ok, 2.5)),
-                        "ci_high": r12(np.percentile(ok, 97.5)),
-                        "p_value": r12(np.mean(ok <= 1.0)), "iterations": ITER,
-                        "iterations_not_formed": ITER - len(ok)})
+            rec = {"e": e, "defined": full is not None, "x_e": r12(xe), "tied_at_crossing": tied,
+                   "discrete_defined": False, "discrete_x_e": 0, "discrete_ratio": 0,
+                   "ratio": r12(full if full is not None else 0),
+                   "ratio_mean": 0, "ratio_sd": 0, "ci_low": 0, "ci_high": 0, "p_value": 0,
+                   "iterations": ITER, "iterations_not_formed": ITER - len(ok)}
+            if why:
+                rec["undefined_reason"] = {"tie": "the 1 - E crossing falls among test points tied at one value",
+                                           "null": "the curve reaches 1 - E only at x = 1"}[why]
+            if why == "tie":
+                d_ok, d_xe, d_r = discrete(pv, bv, bw, e)
+                rec.update(discrete_defined=d_ok, discrete_x_e=r12(d_xe), discrete_ratio=r12(d_r))
+            if len(ok):
+                rec.update(ratio_mean=r12(ok.mean()), ratio_sd=r12(ok.std(ddof=1)) if len(ok) > 1 else 0,
+                           ci_low=r12(np.percentile(ok, 2.5)), ci_high=r12(np.percentile(ok, 97.5)),
+                           p_value=r12(np.mean(ok <= 1.0)))
+            prs.append(rec)
         ths = []
         for tname, tv in thr_list:
             af = float(bw[bv >= tv].sum() / bw.sum())
@@ -343,8 +440,13 @@ for name, M in MODELS:
         scores.append({**base, "scored": True, "cells": ext["cells"], "area_km2": ext["area_km2"],
                        "test_points": int(len(pv)), "train_points": int(len(ptr)),
                        "auc": r12(auc), "auc_unweighted": r12(auc_unw), "auc_train": r12(auc_tr),
-                       "auc_boot_sd": r12(boot_auc.std(ddof=1)), "partial_roc": prs,
-                       "thresholds": ths, "boyce": boyce(pv, bv, bw)})
+                       "auc_se": r12(auc_se), "auc_unweighted_se_delong": r12(math.sqrt(delong_var(Fu, pv, bv))),
+                       "auc_boot_sd": r12(paired_auc.std(ddof=1)),
+                       "test_point_ids": [test[g]["id"] for g in gi],
+                       "placements": [r12(v) for v in F], "placements_unweighted": [r12(v) for v in Fu],
+                       "partial_roc": prs, "thresholds": ths, "boyce": boyce(pv, bv, bw)})
+        EV[(name, eid)] = {"pv": pv, "bv": bv, "bw": bw, "gi": list(gi), "F": F, "Fu": Fu,
+                           "thr": [(MKEY(t), tv) for t, tv in thr_list]}
         cx, cy = thin(*full_curve(pv, bv, bw))
         curves.append({"model": name, "extent": eid, "x": [round(v, 9) for v in cx],
                        "y": [round(v, 9) for v in cy]})
@@ -379,6 +481,89 @@ for chain in ("region", "points"):
             rg["share_of_change"] = (rg["auc_outer"] - rg["auc_inner"]) / tot
         rings.extend(chain_rings)
 
+# ---------------------------------------------------------------- paired
+def evaluate(ev, cnt):
+    """Scores of the multiset with cnt[k] copies of own test point k."""
+    r = int(cnt.sum())
+    if r == 0:
+        return None
+    mult = np.repeat(ev["pv"], cnt)
+    out = {}
+    for e in E_LIST:
+        out["partial_roc_e%g" % e] = proc_ratio(mult, ev["bv"], ev["bw"], e, orig=ev["pv"])
+    for key, tv in ev["thr"]:
+        out[key] = float((cnt * (ev["pv"] < tv)).sum() / r)
+    b = boyce(mult, ev["bv"], ev["bw"])
+    out["boyce"] = b["index"] if b is not None else None
+    return out
+
+
+def compare(kind, ma, ea, mb, eb):
+    A, B = EV[(ma, ea)], EV[(mb, eb)]
+    common = sorted(set(A["gi"]) & set(B["gi"]))
+    pa = [A["gi"].index(g) for g in common]
+    pb = [B["gi"].index(g) for g in common]
+    head = {"kind": kind, "model": ma, "extent": ea, "other_model": mb, "other_extent": eb,
+            "common_points": len(common)}
+    recs = []
+    for key, fa, fb in (("auc", A["F"], B["F"]), ("auc_unweighted", A["Fu"], B["Fu"])):
+        d = fa[pa] - fb[pb]
+        n = len(d)
+        rec = {"metric": key, **head, "method": "placements", "defined": n >= 2, "a": 0, "b": 0,
+               "diff": 0, "se": 0, "ci_low": 0, "ci_high": 0, "resamples": 0,
+               "resamples_not_formed": 0, "test_set_shift": 0}
+        if n >= 2:
+            m = float(d.mean())
+            se = float(np.sqrt(((d - m) ** 2).sum() / (n * (n - 1))))
+            rec.update(a=r12(fa[pa].mean()), b=r12(fb[pb].mean()), diff=r12(m), se=r12(se),
+                       ci_low=r12(m - 1.959963984540054 * se), ci_high=r12(m + 1.959963984540054 * se),
+                       test_set_shift=r12((fa.mean() - fb.mean()) - m))
+        recs.append(rec)
+    ca, cb = np.zeros(len(A["gi"]), int), np.zeros(len(B["gi"]), int)
+    ca[pa], cb[pb] = 1, 1
+    va, vb = evaluate(A, ca), evaluate(B, cb)
+    oa, ob = evaluate(A, np.ones(len(A["gi"]), int)), evaluate(B, np.ones(len(B["gi"]), int))
+    diffs = {k: [] for k in va}
+    for b in range(PAIRED_B):
+        cnt = COUNTS[b, common]
+        ca[pa], cb[pb] = cnt, cnt
+        ra, rb = evaluate(A, ca), evaluate(B, cb)
+        if ra is None:
+            continue
+        for k in diffs:
+            if ra[k] is not None and rb[k] is not None:
+                diffs[k].append(ra[k] - rb[k])
+    for k in va:
+        ds = np.array(diffs[k])
+        ok = va[k] is not None and vb[k] is not None and len(ds) >= 2
+        rec = {"metric": k, **head, "method": "paired_resamples", "defined": ok, "a": 0, "b": 0,
+               "diff": 0, "se": 0, "ci_low": 0, "ci_high": 0, "resamples": PAIRED_B,
+               "resamples_not_formed": PAIRED_B - len(ds), "test_set_shift": 0}
+        if ok:
+            diff = va[k] - vb[k]
+            rec.update(a=r12(va[k]), b=r12(vb[k]), diff=r12(diff), se=r12(ds.std(ddof=1)),
+                       ci_low=r12(np.percentile(ds, 2.5)), ci_high=r12(np.percentile(ds, 97.5)))
+            if oa[k] is not None and ob[k] is not None:
+                rec["test_set_shift"] = r12((oa[k] - ob[k]) - diff)
+        recs.append(rec)
+    return recs
+
+
+paired = []
+ok_ids = [e["id"] for e in extents if e["status"] == "ok" and any((n, e["id"]) in EV for n, _ in MODELS)]
+BASE = "base" if "base" in ok_ids else ok_ids[0]
+for name, _ in MODELS:
+    if (name, BASE) not in EV:
+        continue
+    for eid in ok_ids:
+        if eid != BASE and (name, eid) in EV:
+            paired += compare("extent", name, eid, name, BASE)
+for eid in ok_ids:
+    for i, (ma, _) in enumerate(MODELS):
+        for mb, _ in MODELS[i + 1:]:
+            if (ma, eid) in EV and (mb, eid) in EV:
+                paired += compare("model", ma, eid, mb, eid)
+
 # ---------------------------------------------------------------- preview
 PW, PH = W // 2, H // 2
 g = good[0::2, 0::2]
@@ -403,14 +588,17 @@ counts = {"train": len(train), "test": len(test),
           "nodata": sum(q["status"] == "nodata" for q in points)}
 
 results = {
-    "schema_version": 1,
+    "schema_version": 3,
     "software": {"name": "areasweep", "version": "0.1.0-test"},
     "seed": 20240611,
     "settings": {"region_buffers_km": [50, 100, 200], "point_buffers_km": [25, 100, 400],
                  "point_buffers_all_points": False, "hull_buffers_km": [0],
                  "ecoregion_min_points": 5, "ecoregion_field": "ECO_NAME", "e": E_LIST,
                  "iterations": ITER, "resample_fraction": FRAC, "fixed_thresholds": FIXED,
-                 "thin_per_cell": True, "boyce_window": BOYCE_WINDOW, "boyce_steps": BOYCE_STEPS},
+                 "thin_per_cell": True, "boyce_window": BOYCE_WINDOW, "boyce_steps": BOYCE_STEPS,
+                 "paired_resamples": PAIRED_B, "tolerance_auc": TOL["auc"],
+                 "tolerance_partial_roc": TOL["partial_roc"], "tolerance_omission": TOL["omission"],
+                 "tolerance_boyce": TOL["boyce"]},
     "inputs": [{"role": f"model:{n}", "path": f"models/{n}.tif", "sha256": sha(n)} for n, _ in MODELS]
     + [{"role": "occurrences", "path": "occurrences.csv", "sha256": sha("occurrences")},
        {"role": "region", "path": "region.gpkg", "sha256": sha("region")},
@@ -425,6 +613,7 @@ results = {
     "rings": rings,
     "omissions": omissions,
     "curves": curves,
+    "paired": paired,
     "preview": preview,
     "warnings": ["2 occurrence records share a model cell with an earlier record and were thinned",
                  "1 occurrence record lies outside the model raster",

@@ -4,17 +4,22 @@
 Reads sample_results.json and recomputes, independently of the Go code and
 with numpy/scipy only, every number report.Analyze derives:
 
-  * per metric and model: n, min, max, range, mean, sample SD (numpy ddof=1),
-    median within-extent bootstrap SD (numpy.median), range / median SD;
-  * the slope against log2(area) with scipy.stats.linregress, its 95% CI as
-    slope -+ scipy.stats.t.ppf(0.975, n-2) * stderr, r^2 = rvalue^2;
+  * per metric and model: n, min, max, range, mean, sample SD (numpy ddof=1);
+  * per metric and model, the equivalence verdict from the paired
+    differences from the base extent (results "paired"; exact differences
+    for the predicted area) against the tolerances in the settings: every
+    95% interval inside -T..+T -> robust, one wholly outside ->
+    extent-sensitive, otherwise undetermined; and per metric the summary;
+  * per metric and pair of models, the extents where one is better beyond
+    noise (95% interval excluding 0);
   * the two-way sum-of-squares split of each metric over the models x
     extents table (numpy), the model ranks per extent with
     scipy.stats.rankdata (method "average", rank 1 = best) and Kendall's W
     with the tie correction, written out explicitly in kendall_w_ties()
-    (Legendre 2005, J. Agric. Biol. Environ. Stat. 10:226, eq. 2), its
-    chi-square p-value from scipy.stats.chi2.sf;
-  * the chain steps and shares along each nested chain and the mix residual;
+    (Legendre 2005, J. Agric. Biol. Environ. Stat. 10:226, eq. 2);
+  * the chain steps and shares along each nested chain, the mix residual,
+    and the slope of AUC against log2(area) along the chain
+    (scipy.stats.linregress);
   * the truncation checks, the test-to-training distance quartiles
     (numpy.percentile, linear) and the share within 3 cell widths;
   * the omitted test points per model and threshold.
@@ -65,13 +70,13 @@ HIGHER = {"auc": True, "auc_unweighted": True, "partial_roc": True, "omission": 
 def value(kind, arg, s):
     """(value, boot_sd or None) or None when the score lacks the metric."""
     if kind == "auc":
-        return s["auc"], (s["auc_boot_sd"] if ITER >= 2 else None)
+        return s["auc"], None
     if kind == "auc_unweighted":
         return s["auc_unweighted"], None
     if kind == "partial_roc":
         for p in s["partial_roc"]:
             if abs(p["e"] - arg) <= 1e-12:
-                if p["iterations"] > 0 and p["iterations_not_formed"] >= p["iterations"]:
+                if not p["defined"]:
                     return None
                 good = p["iterations"] - p["iterations_not_formed"] >= 2
                 return p["ratio"], (p["ratio_sd"] if good else None)
@@ -92,7 +97,42 @@ def value(kind, arg, s):
 
 
 out = {"source": "testdata/report/golden.py (numpy + scipy, Debian python3-scipy)",
-       "spreads": [], "decompositions": [], "chains": [], "truncation": [], "omitted": []}
+       "spreads": [], "model_verdicts": [], "verdicts": [], "rankings": [],
+       "decompositions": [], "chains": [], "truncation": [], "omitted": []}
+ST = R["settings"]
+TOL = {"auc": ST["tolerance_auc"], "auc_unweighted": ST["tolerance_auc"],
+       "partial_roc": ST["tolerance_partial_roc"], "omission": ST["tolerance_omission"],
+       "area_fraction": ST["tolerance_omission"], "boyce": ST["tolerance_boyce"]}
+ok_ids = [e["id"] for e in ok_ext if any(usable(m, e["id"]) for m in models)]
+BASE = "base" if "base" in ok_ids else ok_ids[0]
+out["base_extent"] = BASE
+out["test_points"] = [next(e["test_points"] for e in ok_ext if e["id"] == i) for i in ok_ids]
+PAIRED = {(p["metric"], p["kind"], p["model"], p["extent"], p["other_model"], p["other_extent"]): p
+          for p in R["paired"]}
+
+
+def position(lo, hi, tol):
+    if lo >= -tol and hi <= tol:
+        return "inside"
+    if lo > tol or hi < -tol:
+        return "outside"
+    return "overlapping"
+
+
+def difference(key, kind_metric, arg, kind, ma, ea, mb, eb):
+    """(defined, diff, low, high, position) of one paired difference."""
+    tol = TOL[kind_metric]
+    if kind_metric == "area_fraction":
+        a, b = usable(ma, ea), usable(mb, eb)
+        va, vb = value(kind_metric, arg, a), value(kind_metric, arg, b)
+        if va is None or vb is None:
+            return None
+        d = va[0] - vb[0]
+        return d, d, d, position(d, d, tol)
+    p = PAIRED.get((key, kind, ma, ea, mb, eb))
+    if p is None or not p["defined"]:
+        return None
+    return p["diff"], p["ci_low"], p["ci_high"], position(p["ci_low"], p["ci_high"], tol)
 
 # ------------------------------------------------------------ spreads, slopes
 for key, kind, arg in metrics:
@@ -118,23 +158,53 @@ for key, kind, arg in metrics:
                        max_extent=ids[int(np.argmax(v))])
         rec["sd_defined"] = len(v) >= 2
         rec["sd"] = float(np.std(v, ddof=1)) if len(v) >= 2 else 0.0
-        med = float(np.median(boots)) if boots else 0.0
-        rec["boot_sd_defined"] = bool(boots) and med > 0
-        rec["boot_sd_median"] = med if rec["boot_sd_defined"] else 0.0
-        rec["range_over_boot_sd"] = rec["range"] / med if rec["boot_sd_defined"] else 0.0
-        x = np.log2(np.array(areas))
-        if len(v) >= 3:
-            lr = stats.linregress(x, v)
-            tq = float(stats.t.ppf(0.975, len(v) - 2))
-            rec["slope"] = {"per_doubling": float(lr.slope), "intercept": float(lr.intercept),
-                            "std_err": float(lr.stderr), "t_quantile": tq,
-                            "ci_low": float(lr.slope - tq * lr.stderr),
-                            "ci_high": float(lr.slope + tq * lr.stderr),
-                            "r2": float(lr.rvalue ** 2)}
-        limit = 2 * med if rec["boot_sd_defined"] else 0.05
-        rec["verdict"] = "undetermined" if len(v) < 2 else (
-            "robust" if rec["range"] <= limit else "extent-sensitive")
         out["spreads"].append(rec)
+
+# ------------------------------------------------------------ verdicts
+for key, kind, arg in metrics:
+    summary = {"metric": key, "sensitive": [], "robust": [], "undetermined": []}
+    for m in models:
+        rec = {"metric": key, "model": m, "diffs": [], "verdict": "undetermined", "largest": -1}
+        if usable(m, BASE) is not None:
+            for e in ok_ext:
+                if e["id"] == BASE or usable(m, e["id"]) is None:
+                    continue
+                d = difference(key, kind, arg, "extent", m, e["id"], m, BASE)
+                rec["diffs"].append({"extent": e["id"], "defined": d is not None,
+                                     **({"diff": d[0], "low": d[1], "high": d[2], "position": d[3]} if d else {})})
+            defined = [x for x in rec["diffs"] if x["defined"]]
+            if defined:
+                big = max(range(len(rec["diffs"])), key=lambda i: abs(rec["diffs"][i]["diff"]) if rec["diffs"][i]["defined"] else -1)
+                rec["largest"] = big
+                if any(x["position"] == "outside" for x in defined):
+                    rec["verdict"] = "extent-sensitive"
+                elif len(defined) == len(rec["diffs"]) and all(x["position"] == "inside" for x in defined):
+                    rec["verdict"] = "robust"
+        out["model_verdicts"].append(rec)
+        summary[{"extent-sensitive": "sensitive", "robust": "robust", "undetermined": "undetermined"}[rec["verdict"]]].append(m)
+    summary["verdict"] = "extent-sensitive" if summary["sensitive"] else (
+        "robust" if summary["robust"] and not summary["undetermined"] else "undetermined")
+    out["verdicts"].append(summary)
+
+# ------------------------------------------------------------ model rankings
+for key, kind, arg in metrics:
+    if kind == "area_fraction":
+        continue
+    for i, ma in enumerate(models):
+        for mb in models[i + 1:]:
+            rec = {"metric": key, "model": ma, "other": mb, "extents": 0, "better": 0, "worse": 0, "within_noise": 0}
+            for e in ok_ext:
+                if usable(ma, e["id"]) is None or usable(mb, e["id"]) is None:
+                    continue
+                d = difference(key, kind, arg, "model", ma, e["id"], mb, e["id"])
+                if d is None:
+                    continue
+                rec["extents"] += 1
+                up, down = d[1] > 0, d[2] < 0
+                if not HIGHER[kind]:
+                    up, down = down, up
+                rec["better" if up else "worse" if down else "within_noise"] += 1
+            out["rankings"].append(rec)
 
 
 # ------------------------------------------------------------ decomposition
@@ -152,9 +222,7 @@ def kendall_w_ties(rank_rows):
     for row in rk:
         _, counts = np.unique(row, return_counts=True)
         T += float((counts ** 3 - counts).sum())
-    W = 12 * S / (m ** 2 * (n ** 3 - n) - m * T)
-    chi2 = m * (n - 1) * W
-    return W, chi2, n - 1, float(stats.chi2.sf(chi2, n - 1))
+    return 12 * S / (m ** 2 * (n ** 3 - n) - m * T)
 
 
 for key, kind, arg in metrics:
@@ -180,13 +248,13 @@ for key, kind, arg in metrics:
     ranks = [list(stats.rankdata(sign * np.array(c), method="average")) for c in cols]
     base = ids.index("base") if "base" in ids else 0
     differs = [ids[j] for j in range(len(ids)) if ranks[j] != ranks[base]]
-    W, chi2, df, p = kendall_w_ties(ranks)
+    W = kendall_w_ties(ranks)
     out["decompositions"].append({
         "metric": key, "extents": ids, "grand_mean": float(gm), "ss_total": sst, "ss_extent": sse,
         "ss_model": ssm, "ss_residual": ssr, "share_extent": sse / sst, "share_model": ssm / sst,
         "share_residual": ssr / sst, "ranks": [[float(v) for v in r] for r in ranks],
         "base_extent": ids[base], "differs_from_base": differs,
-        "kendall_w": W, "chi_square": chi2, "df": df, "p_value": p})
+        "kendall_w": W})
 
 # ------------------------------------------------------------ chains
 groups = {}
@@ -217,9 +285,17 @@ for k in order:
     total = prev - start
     for st in steps:
         st["share"] = st["change"] / total
-    out["chains"].append({"chain": k[0], "model": k[1],
-                          "members": [rings[0]["inner"]] + [g["outer"] for g in rings],
-                          "start_auc": start, "end_auc": prev, "change": total, "steps": steps})
+    members = [rings[0]["inner"]] + [g["outer"] for g in rings]
+    area = {e["id"]: e["area_km2"] for e in R["extents"]}
+    aucs = []
+    for i, mid in enumerate(members):
+        sc_ = usable(k[1], mid)
+        aucs.append(sc_["auc"] if sc_ is not None else (rings[0]["auc_inner"] if i == 0 else rings[i - 1]["auc_outer"]))
+    lr = stats.linregress(np.log2([area[mid] for mid in members]), aucs)
+    out["chains"].append({"chain": k[0], "model": k[1], "members": members,
+                          "start_auc": start, "end_auc": prev, "change": total, "steps": steps,
+                          "slope": {"per_doubling": float(lr.slope), "intercept": float(lr.intercept),
+                                    "r2": float(lr.rvalue ** 2)}})
 
 # ------------------------------------------------------------ truncation
 for mi in R["models"]:
@@ -235,7 +311,7 @@ for mi in R["models"]:
         while k >= 0 and x[k] == x[-1] and y[k] == y[-1]:
             k -= 1
         jump = float(x[-1] - x[k])
-        if jump > 0.2:
+        if jump > 0.2 and y[k] < 1:
             tails.append({"extent": c["extent"], "jump": jump, "y_from": float(y[k])})
     out["truncation"].append({"model": m, "floor_flag": mi["floor_share"] >= 0.2, "tails": tails,
                               "flag": mi["floor_share"] >= 0.2 or bool(tails)})

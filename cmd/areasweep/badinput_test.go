@@ -1,0 +1,520 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"io/fs"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent"
+)
+
+// forbidden are words that must never reach a user's terminal: Go crash
+// output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer`)
+
+// badFixture holds the good inputs of the small study plus the bad ones
+// each case writes, and a separate folder for outputs.
+type badFixture struct {
+	*smallStudy
+	outs string
+}
+
+// file writes body into the fixture's input folder and returns its path.
+func (f *badFixture) file(name, body string) string {
+	p := filepath.Join(f.dir, name)
+	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+		panic(err)
+	}
+	return p
+}
+
+// run returns the arguments of a good run with extra flags appended
+// (a later flag overrides an earlier one).
+func (f *badFixture) run(extra ...string) []string {
+	a := []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ, "--region", f.region, "--iterations", "5",
+		"--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0"}
+	return append(a, extra...)
+}
+
+// withModel, withOcc and withRegion replace one input of a good run.
+func (f *badFixture) withModel(p string, extra ...string) []string {
+	return append([]string{"run", "--model", "m=" + p, "--occurrences", f.occ, "--region", f.region, "--iterations", "5"}, extra...)
+}
+func (f *badFixture) withOcc(p string, extra ...string) []string {
+	return append([]string{"run", "--model", "m=" + f.model, "--occurrences", p, "--region", f.region, "--iterations", "5"}, extra...)
+}
+func (f *badFixture) withRegion(p string, extra ...string) []string {
+	return append([]string{"run", "--model", "m=" + f.model, "--occurrences", f.occ, "--region", p, "--iterations", "5"}, extra...)
+}
+
+// polygonJSON is a one-feature GeoJSON layer with the given geometry and
+// properties (lon/lat, CRS84).
+func polygonJSON(geom, props string) string {
+	return `{"type":"FeatureCollection","features":[{"type":"Feature","properties":{` + props + `},"geometry":` + geom + `}]}`
+}
+
+const squareGeom = `{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,41.5],[18.5,46.5],[12.5,46.5],[12.5,41.5]]]}`
+
+// rasterWith writes a 48x32 Float32 raster on the study grid whose cells
+// come from fn (NaN = the nodata value), with the given geotransform and
+// CRS ("" for none).
+func (f *badFixture) rasterWith(t *testing.T, name string, gt [6]float64, crs string, fn func(i int) float64) string {
+	t.Helper()
+	p := filepath.Join(f.dir, name)
+	ds, err := godal.Create(godal.GTiff, p, 1, godal.Float32, f.w, f.h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=16", "BLOCKYSIZE=16"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.SetGeoTransform(gt); err != nil {
+		t.Fatal(err)
+	}
+	if crs != "" {
+		if err := ds.SetProjection(crs); err != nil {
+			t.Fatal(err)
+		}
+	}
+	b := ds.Bands()[0]
+	b.SetNoData(smallNoData)
+	buf := make([]float32, f.w*f.h)
+	for i := range buf {
+		v := fn(i)
+		if math.IsNaN(v) {
+			v = smallNoData
+		}
+		buf[i] = float32(v)
+	}
+	if err := b.Write(0, 0, buf, f.w, f.h); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// treeSums returns the SHA-256 of every file under dir, by path.
+func treeSums(t *testing.T, dir string) map[string]string {
+	t.Helper()
+	sums := map[string]string{}
+	filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() || !d.Type().IsRegular() {
+			return nil
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatalf("read %s: %v", p, err)
+		}
+		h := sha256.Sum256(b)
+		sums[p] = hex.EncodeToString(h[:])
+		return nil
+	})
+	return sums
+}
+
+// leftovers lists staging folders, set-aside folders and lock files
+// under the dirs.
+func leftovers(dirs ...string) []string {
+	var found []string
+	for _, dir := range dirs {
+		filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+			if err != nil {
+				return nil
+			}
+			n := d.Name()
+			if strings.Contains(n, "areasweep-partial") || strings.Contains(n, ".partial-") || strings.HasPrefix(n, holdPrefix) || strings.HasSuffix(n, lockSuffix) {
+				found = append(found, p)
+			}
+			return nil
+		})
+	}
+	return found
+}
+
+type badCase struct {
+	name  string
+	args  []string
+	code  int
+	words []string // each must appear in stderr
+	dir   string   // working directory of the run ("" = the test's)
+	// keepOut: the case gives --out itself (an existing folder whose
+	// content must stay as it was, or a path that must stay absent).
+	keepOut string
+}
+
+// TestBadInputs runs the built binary on bad inputs and settings of every
+// kind. Each case checks the exit code, that stderr names the file and the
+// line, feature, band or field with words a user can act on, that nothing
+// was written (--out absent or unchanged, no staging folder or lock left),
+// that every input is byte-identical afterwards, and that no crash output
+// or raw library message reached stderr.
+func TestBadInputs(t *testing.T) {
+	// Outputs live apart from the inputs' parent folder, so that cases
+	// whose --out is that parent see no other case's files.
+	outs, err := os.MkdirTemp("", "areasweep-bad-")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { os.RemoveAll(outs) })
+	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
+	cases := f.cases(t)
+	if len(cases) < 60 {
+		t.Fatalf("only %d bad-input cases; the suite promises at least 60", len(cases))
+	}
+	for i, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			t.Parallel() // cases share read-only inputs; each has its own output folder
+			caseDir := filepath.Join(f.outs, fmt.Sprintf("case%02d", i))
+			os.MkdirAll(caseDir, 0o755)
+			out := filepath.Join(caseDir, "out")
+			args := append([]string{}, c.args...)
+			if c.keepOut != "" {
+				out = c.keepOut
+			} else if args[0] == "run" || args[0] == "extents" || args[0] == "demo" {
+				args = append(args, "--out", out)
+			}
+			if args[0] != "report" && !contains(args, "--quiet") {
+				args = append(args, "--quiet")
+			}
+			before := treeSums(t, f.dir)
+			outBefore := treeSums(t, out)
+			_, outExisted := os.Stat(out)
+			cmd := exec.Command(areasweepBin, args...)
+			cmd.Dir = c.dir
+			var se strings.Builder
+			cmd.Stderr = &se
+			err := cmd.Run()
+			code := 0
+			if ee, ok := err.(*exec.ExitError); ok {
+				code = ee.ExitCode()
+			}
+			stderr := se.String()
+			if code != c.code {
+				t.Errorf("exit %d, want %d; stderr: %s", code, c.code, stderr)
+			}
+			for _, w := range c.words {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr does not say %q: %s", w, stderr)
+				}
+			}
+			if m := forbidden.FindString(stderr); m != "" {
+				t.Errorf("stderr holds %q: %s", m, stderr)
+			}
+			if len(stderr) > 3000 {
+				t.Errorf("stderr is %d bytes long; a refusal should be a few lines", len(stderr))
+			}
+			if outExisted != nil {
+				if _, err := os.Stat(out); err == nil {
+					t.Errorf("--out %s was created", out)
+				}
+			} else if after := treeSums(t, out); !sameSums(outBefore, after) {
+				t.Errorf("--out %s changed", out)
+			}
+			l := leftovers(f.dir, caseDir)
+			beside, _ := filepath.Glob(filepath.Join(filepath.Dir(out), "."+filepath.Base(out)+".*"))
+			if l = append(l, beside...); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+				for _, p := range l {
+					os.RemoveAll(p)
+				}
+			}
+			if after := treeSums(t, f.dir); !sameSums(before, after) {
+				t.Errorf("an input file changed or appeared: %d files before, %d after", len(before), len(after))
+			}
+		})
+	}
+}
+
+func sameSums(a, b map[string]string) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for k, v := range a {
+		if b[k] != v {
+			return false
+		}
+	}
+	return true
+}
+
+// cases builds the bad inputs. Files are written into the fixture before
+// any case runs.
+func (f *badFixture) cases(t *testing.T) []badCase {
+	gt := f.gt
+	ridge := func(i int) float64 { return f.vals[i] }
+	wgs := `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+
+	// Occurrence tables.
+	occHeader := "lon,lat,role\n13.1,42.6,train\n"
+	big := strings.Repeat("x", 20<<20)
+	longLine := "lon,lat,role\n13.1,42.6,train\n13.5,43.0,test," + strings.Repeat("y", 2<<20) + "\n"
+	var far strings.Builder
+	far.WriteString("lon,lat,role\n")
+	for i := 0; i < 5; i++ {
+		far.WriteString(fmt.Sprintf("%d.5,%d.5,train\n%d.5,%d.5,test\n", 13+i, 43, 14+i, 44))
+	}
+	occDir := filepath.Join(f.dir, "occdir.csv")
+	os.Mkdir(occDir, 0o755)
+
+	// Rasters.
+	allNoData := f.rasterWith(t, "allnodata.tif", gt, wgs, func(int) float64 { return math.NaN() })
+	rotated := f.rasterWith(t, "rotated.tif", [6]float64{10, 0.25, 0.01, 48, 0, -0.25}, wgs, ridge)
+	local := f.rasterWith(t, "local.tif", gt, `LOCAL_CS["Undefined Cartesian SRS",UNIT["metre",1]]`, ridge)
+	notRaster := f.file("notraster.tif", "this is text, not a raster\n")
+	good, _ := os.ReadFile(f.model)
+	truncated := f.file("truncated.tif", string(good[:len(good)*2/3]))
+	shifted := f.rasterWith(t, "shifted.tif", [6]float64{10.5, 0.25, 0, 48, 0, -0.25}, wgs, ridge)
+	huge := filepath.Join(f.dir, "huge.tif")
+	{
+		ds, err := godal.Create(godal.GTiff, huge, 1, godal.Byte, 360000, 180000, godal.CreationOption("TILED=YES", "SPARSE_OK=TRUE", "BLOCKXSIZE=512", "BLOCKYSIZE=512"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform([6]float64{-180, 0.001, 0, 90, 0, -0.001})
+		ds.SetProjection(wgs)
+		ds.Bands()[0].SetNoData(255)
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+	}
+
+	// Vector layers.
+	pointLayer := f.file("point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, ``))
+	lineLayer := f.file("line.geojson", polygonJSON(`{"type":"LineString","coordinates":[[14,43],[15,44]]}`, ``))
+	degenerate := f.file("degenerate.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[14,43],[15,44],[16,45],[14,43]]]}`, ``))
+	mixedCollection := f.file("collection.geojson", polygonJSON(`{"type":"GeometryCollection","geometries":[`+squareGeom+`,{"type":"Point","coordinates":[14,43]}]}`, ``))
+	beyondPole := f.file("pole.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[14,43],[16,43],[16,99],[14,43]]]}`, ``))
+	emptyLayer := f.file("empty.geojson", `{"type":"FeatureCollection","features":[]}`)
+	notVector := f.file("notvector.gpkg", "plain text\n")
+	antimeridian := f.file("antimeridian.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[170,41],[-170,41],[-170,46],[170,46],[170,41]]]}`, ``))
+	ecoNull := f.file("eco_null.geojson", `{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"unit":"a"},"geometry":`+squareGeom+`},{"type":"Feature","properties":{"unit":null},"geometry":{"type":"Polygon","coordinates":[[[18.5,41.5],[21,41.5],[21,46.5],[18.5,46.5],[18.5,41.5]]]}}]}`)
+	ecoEmpty := f.file("eco_empty.geojson", polygonJSON(squareGeom, `"unit":""`))
+	ecoGood := f.file("eco_good.geojson", polygonJSON(squareGeom, `"unit":"a"`))
+	ecoPoint := f.file("eco_point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, `"unit":"a"`))
+	noCRSshp := filepath.Join(f.dir, "nocrs.shp")
+	{
+		ds, err := godal.CreateVector(godal.Shapefile, noCRSshp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		l, err := ds.CreateLayer("nocrs", nil, godal.GTPolygon)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g, _ := godal.NewGeometryFromWKT("POLYGON ((12.5 41.5, 18.5 41.5, 18.5 46.5, 12.5 46.5, 12.5 41.5))", nil)
+		l.NewFeature(g)
+		ds.Close()
+	}
+	undefGPKG := filepath.Join(f.dir, "undefined.gpkg")
+	{
+		src, err := godal.Open(f.region, godal.VectorOnly())
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst, err := src.VectorTranslate(undefGPKG, []string{"-f", "GPKG"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst.Close()
+		src.Close()
+		ds, err := godal.Open(undefGPKG, godal.VectorOnly(), godal.Update())
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, q := range []string{"UPDATE gpkg_geometry_columns SET srs_id = 0", "UPDATE gpkg_contents SET srs_id = 0"} {
+			if rs, err := ds.ExecuteSQL(q, godal.SQLiteDialect()); err != nil {
+				t.Fatal(err)
+			} else if rs != nil {
+				rs.Close()
+			}
+		}
+		ds.Close()
+	}
+
+	// Study files.
+	studyOutUp := f.file("study_out_up.yaml", "model: [m="+f.model+"]\noccurrences: "+f.occ+"\nregion: "+f.region+"\nout: ..\n")
+	studyUnknown := f.file("study_unknown.yaml", "modle: x\n")
+	studyType := f.file("study_type.yaml", "model: [m="+f.model+"]\noccurrences: occ.csv\nregion: region.geojson\niterations: many\n")
+	studyDup := f.file("study_dup.yaml", "occurrences: a.csv\noccurrences: b.csv\n")
+	studyBig := f.file("study_big.yaml", "# "+strings.Repeat("z", 2<<20)+"\n")
+	studyDir := filepath.Join(f.dir, "study.d")
+	os.Mkdir(studyDir, 0o755)
+
+	// Results files for report.
+	reportDir := func(name string, body string) string {
+		d := filepath.Join(f.outs, name)
+		os.MkdirAll(d, 0o755)
+		if body != "" {
+			os.WriteFile(filepath.Join(d, "results.json"), []byte(body), 0o644)
+		}
+		return d
+	}
+	badAUC := func() string {
+		b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "report", "sample_results.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var m map[string]any
+		if err := json.Unmarshal(b, &m); err != nil {
+			t.Fatal(err)
+		}
+		for _, s := range m["scores"].([]any) {
+			if sc := s.(map[string]any); sc["scored"] == true {
+				sc["auc"] = -5
+				break
+			}
+		}
+		out, _ := json.Marshal(m)
+		return string(out)
+	}()
+	rdNone := reportDir("report-none", "")
+	rdAUC := reportDir("report-auc", badAUC)
+	rdBroken := reportDir("report-broken", `{"schema_version": 1, "scores": [`)
+	rdSchema := reportDir("report-schema", `{"schema_version": 99}`)
+
+	// Existing outputs.
+	nonEmpty := filepath.Join(f.outs, "nonempty")
+	os.MkdirAll(nonEmpty, 0o755)
+	os.WriteFile(filepath.Join(nonEmpty, "notes.txt"), []byte("mine"), 0o644)
+	aFile := filepath.Join(f.outs, "afile")
+	os.WriteFile(aFile, []byte("x"), 0o644)
+
+	// With the fixture's two region buffers, tooMany makes MaxMembers
+	// region buffers plus the base region: one member more than the family
+	// holds, refused as the members are listed; many is more values than a
+	// buffer list takes.
+	many := make([]string, extent.MaxMembers+1)
+	for i := range many {
+		many[i] = fmt.Sprint(i + 1)
+	}
+	tooMany := strings.Join(many[:extent.MaxMembers-2], ",")
+	tooManyMsg := fmt.Sprintf("more than %d extents", extent.MaxMembers)
+	manyThresholds := make([]string, 1001)
+	for i := range manyThresholds {
+		manyThresholds[i] = fmt.Sprintf("%g", float64(i)/1001)
+	}
+
+	return []badCase{
+		// Settings and flags.
+		{"e above 1", f.run("--e", "1.5"), 2, []string{"--e", "1.5", "(0,1)"}, "", ""},
+		{"e zero", f.run("--e", "0"), 2, []string{"--e", "(0,1)"}, "", ""},
+		{"e twice", f.run("--e", "0.05,0.05"), 2, []string{"--e", "0.05 twice"}, "", ""},
+		{"thresholds twice", f.run("--thresholds", "0.5,0.2,0.5"), 2, []string{"--thresholds", "0.5 twice"}, "", ""},
+		{"thresholds too many", f.run("--thresholds", strings.Join(manyThresholds, ",")), 2, []string{"--thresholds", "1001 values", "at most 1000"}, "", ""},
+		{"thresholds not numbers", f.run("--thresholds", "0.5,high"), 2, []string{"--thresholds", "high"}, "", ""},
+		{"iterations zero", f.run("--iterations", "0"), 2, []string{"--iterations is 0"}, "", ""},
+		{"iterations too many", f.run("--iterations", "2000000"), 2, []string{"--iterations", "1000000"}, "", ""},
+		{"fraction zero", f.run("--fraction", "0"), 2, []string{"--fraction 0"}, "", ""},
+		{"fraction above 1", f.run("--fraction", "1.5"), 2, []string{"--fraction 1.5"}, "", ""},
+		{"workers huge", f.run("--workers", "100000"), 2, []string{"--workers is 100000", "256"}, "", ""},
+		{"workers negative", f.run("--workers", "-1"), 2, []string{"--workers is -1"}, "", ""},
+		{"point buffer negative", f.run("--point-buffers=-5"), 2, []string{"--point-buffers", "-5", "positive"}, "", ""},
+		{"hull buffer negative", f.run("--hull-buffers=-1"), 2, []string{"--hull-buffers", "-1"}, "", ""},
+		{"region buffers too many", f.run("--region-buffers=" + strings.Join(many, ",")), 2, []string{"--region-buffers", fmt.Sprintf("values; at most %d", extent.MaxMembers)}, "", ""},
+		{"region buffers not numbers", f.run("--region-buffers=10,ten"), 2, []string{"--region-buffers", "ten"}, "", ""},
+		{"more extents than the family holds", f.run("--region-buffers="+tooMany, "--point-buffers", "10,20,30", "--hull-buffers", "0,10"), 2, []string{tooManyMsg}, "", ""},
+		{"extents: more than the family holds", append([]string{"extents"}, f.run("--region-buffers="+tooMany, "--point-buffers", "10,20,30", "--hull-buffers", "0,10")[1:]...), 2, []string{tooManyMsg}, "", ""},
+		{"ecoregion min points zero", f.run("--ecoregions", ecoGood, "--ecoregion-field", "unit", "--ecoregion-min-points", "0"), 2, []string{"--ecoregion-min-points is 0"}, "", ""},
+		{"ecoregions without field", f.run("--ecoregions", ecoGood), 2, []string{"--ecoregion-field"}, "", ""},
+		{"model without path", []string{"run", "--model", "m=", "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no PATH"}, "", ""},
+		{"model without name", []string{"run", "--model", f.model, "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no '='"}, "", ""},
+		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
+		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
+		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
+		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed"}, "", ""},
+		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
+		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},
+		{"no occurrences", []string{"run", "--model", "m=" + f.model, "--region", f.region}, 2, []string{"--occurrences"}, "", ""},
+		{"out empty", append(f.run("--out", ""), "--quiet"), 2, []string{"--out is empty"}, "", filepath.Join(f.outs, "never")},
+
+		// The output folder.
+		{"out is the inputs folder, force", append(f.run("--out", f.dir, "--force"), "--quiet"), 2, []string{"holds the input", "whatever --force says"}, "", f.dir},
+		{"out contains the inputs folder, force", append(f.run("--out", filepath.Dir(f.dir), "--force"), "--quiet"), 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
+		{"out is the current folder holding inputs", append(f.run("--out", ".", "--force"), "--quiet"), 2, []string{"holds the input"}, f.dir, f.dir},
+		{"study file out: ..", []string{"run", "--study", studyOutUp, "--force", "--quiet"}, 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
+		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory"}, "", aFile},
+		{"out not empty without force", append(f.run("--out", nonEmpty), "--quiet"), 2, []string{"not empty", "--force"}, "", nonEmpty},
+		{"out below a file", append(f.run("--out", filepath.Join(aFile, "sub")), "--quiet"), 2, []string{"afile", "cannot be used", "not a directory"}, "", filepath.Join(aFile, "sub")},
+
+		// Occurrence tables.
+		{"occurrences missing", f.withOcc(filepath.Join(f.dir, "nope.csv")), 2, []string{"nope.csv", "does not exist"}, "", ""},
+		{"occurrences is a folder", f.withOcc(occDir), 2, []string{"occdir.csv", "directory"}, "", ""},
+		{"occurrences is a device", f.withOcc("/dev/zero"), 2, []string{"/dev/zero", "not a regular file"}, "", ""},
+		{"occurrences empty", f.withOcc(f.file("empty.csv", "")), 2, []string{"empty.csv", "empty"}, "", ""},
+		{"occurrences header only", f.withOcc(f.file("header.csv", "lon,lat,role\n")), 2, []string{"header.csv", "only a header"}, "", ""},
+		{"occurrences no role column", f.withOcc(f.file("norole.csv", "lon,lat\n13,43\n")), 2, []string{"norole.csv", "role"}, "", ""},
+		{"occurrences bad role", f.withOcc(f.file("badrole.csv", occHeader+"13.5,43,maybe\n")), 2, []string{"badrole.csv line 3", `column "role"`, "maybe"}, "", ""},
+		{"occurrences decimal comma", f.withOcc(f.file("comma.csv", occHeader+"13,5,43,5,test\n")), 2, []string{"comma.csv line 3", "decimal comma"}, "", ""},
+		{"occurrences 20 MB cell", f.withOcc(f.file("bigcell.csv", occHeader+"13.5,43,"+big+"\n")), 2, []string{"bigcell.csv", "longer than"}, "", ""},
+		{"occurrences long role echoed short", f.withOcc(f.file("longrole.csv", occHeader+"13.5,43,"+strings.Repeat("r", 5000)+"\n")), 2, []string{"longrole.csv line 3", "(5000 characters)"}, "", ""},
+		{"occurrences line over 1 MiB", f.withOcc(f.file("longline.csv", longLine)), 2, []string{"longline.csv line 3", "longer than"}, "", ""},
+		{"occurrences bad number", f.withOcc(f.file("badnum.csv", occHeader+"13.5,abc,test\n")), 2, []string{"badnum.csv line 3", `column "lat"`, "abc"}, "", ""},
+		{"occurrences latitude 95", f.withOcc(f.file("lat95.csv", occHeader+"13.5,95,test\n")), 2, []string{"lat95.csv line 3", "95"}, "", ""},
+		{"occurrences swapped", f.withOcc(f.file("swapped.csv", "lon,lat,role\n43,13,train\n44,120,test\n")), 2, []string{"swapped.csv", "swapped"}, "", ""},
+		{"occurrences UTF-16", f.withOcc(f.file("utf16.csv", "\xff\xfel\x00o\x00n\x00")), 2, []string{"utf16.csv line 1", "UTF-16"}, "", ""},
+		{"occurrences no test", f.withOcc(f.file("notest.csv", occHeader)), 2, []string{"notest.csv", "test"}, "", ""},
+		{"occurrences no train", f.withOcc(f.file("notrain.csv", "lon,lat,role\n13.5,43,test\n")), 2, []string{"notrain.csv", "train"}, "", ""},
+		{"occurrences bad quote", f.withOcc(f.file("quote.csv", occHeader+"13.5,\"43,test\n")), 2, []string{"quote.csv line 3", "quote"}, "", ""},
+		{"occurrences all outside", f.withOcc(f.file("outside.csv", "lon,lat,role\n100,10,train\n101,11,test\n")), 2, []string{"outside.csv", "outside the raster"}, "", ""},
+		{"occurrences degrees with a projected CRS", f.withOcc(f.file("degrees.csv", far.String()), "--occurrences-crs", "EPSG:3035"), 2, []string{"degrees.csv", "look like degrees", "EPSG:3035"}, "", ""},
+		{"occurrences test points on no data", f.withOcc(f.file("nodata.csv", "lon,lat,role\n13.5,43,train\n21.5,40.5,test\n")), 2, []string{"nodata.csv", "no test point", "model.tif"}, "", ""},
+
+		// Study files.
+		{"study missing", []string{"run", "--study", filepath.Join(f.dir, "nope.yaml")}, 2, []string{"nope.yaml"}, "", ""},
+		{"study is a folder", []string{"run", "--study", studyDir}, 2, []string{"study.d", "directory"}, "", ""},
+		{"study unknown key", []string{"run", "--study", studyUnknown}, 2, []string{"study_unknown.yaml line 1", "modle"}, "", ""},
+		{"study wrong type", []string{"run", "--study", studyType}, 2, []string{"study_type.yaml line 4", "iterations", "many"}, "", ""},
+		{"study repeated key", []string{"run", "--study", studyDup}, 2, []string{"study_dup.yaml line 2", "occurrences"}, "", ""},
+		{"study too large", []string{"run", "--study", studyBig}, 2, []string{"study_big.yaml", "larger than 1 MiB"}, "", ""},
+
+		// Model rasters.
+		{"model missing", f.withModel(filepath.Join(f.dir, "nope.tif")), 2, []string{"model m", "nope.tif", "does not exist"}, "", ""},
+		{"model is a folder", f.withModel(studyDir), 2, []string{"study.d", "directory"}, "", ""},
+		{"model not a raster", f.withModel(notRaster), 2, []string{"notraster.tif", "not a raster GDAL can read"}, "", ""},
+		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
+		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
+		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
+		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
+		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
+		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.1,42.6,train\n13.5,43,test\n")), 2, []string{"memory", "360000x180000", "gdalwarp"}, "", ""},
+
+		// Vector layers.
+		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
+		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
+		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
+		{"region point", f.withRegion(pointLayer), 2, []string{"point.geojson feature 1", "point"}, "", ""},
+		{"region line", f.withRegion(lineLayer), 2, []string{"line.geojson feature 1", "linestring"}, "", ""},
+		{"region degenerate polygon", f.withRegion(degenerate), 2, []string{"degenerate.geojson feature 1", "degenerate"}, "", ""},
+		{"region collection with a point", f.withRegion(mixedCollection), 2, []string{"collection.geojson feature 1", "part 2", "point"}, "", ""},
+		{"region vertex beyond the pole", f.withRegion(beyondPole), 2, []string{"pole.geojson feature 1", "latitude 99"}, "", ""},
+		{"region without CRS", f.withRegion(noCRSshp), 2, []string{"nocrs.shp", "no CRS"}, "", ""},
+		{"region undefined CRS", f.withRegion(undefGPKG), 2, []string{"undefined.gpkg", "undefined CRS", "Undefined geographic SRS"}, "", ""},
+		{"region outside the raster", f.withRegion(f.far), 2, []string{"far.geojson", "covers no cell"}, "", ""},
+		{"region across the antimeridian", f.withRegion(antimeridian), 2, []string{"antimeridian.geojson", "from lon 170.0000 to -170.0000"}, "", ""},
+		{"extents: region point", append([]string{"extents"}, f.withRegion(pointLayer)[1:]...), 2, []string{"point.geojson feature 1", "point"}, "", ""},
+		{"ecoregions NULL id", f.run("--ecoregions", ecoNull, "--ecoregion-field", "unit"), 2, []string{"eco_null.geojson", "NULL", `"unit"`}, "", ""},
+		{"ecoregions empty id", f.run("--ecoregions", ecoEmpty, "--ecoregion-field", "unit"), 2, []string{"eco_empty.geojson feature 1", "no value", `"unit"`}, "", ""},
+		{"ecoregions missing field", f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone"), 2, []string{"eco_good.geojson", `no field "zone"`, "unit"}, "", ""},
+		{"ecoregions point", f.run("--ecoregions", ecoPoint, "--ecoregion-field", "unit"), 2, []string{"eco_point.geojson feature 1", "point"}, "", ""},
+		{"extents: ecoregions missing field", append([]string{"extents"}, f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone")[1:]...), 2, []string{`no field "zone"`}, "", ""},
+		{"extra unreadable", f.run("--extra", "x="+notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
+		{"extra line", f.run("--extra", "x="+lineLayer), 2, []string{"line.geojson feature 1", "linestring"}, "", ""},
+
+		// report DIR.
+		{"report without results", []string{"report", rdNone}, 2, []string{"results.json not found"}, "", rdNone},
+		{"report AUC -5", []string{"report", rdAUC}, 2, []string{"results.json", ".auc: -5 is outside [0, 1]"}, "", rdAUC},
+		{"report broken JSON", []string{"report", rdBroken}, 2, []string{"results.json", "not a results file"}, "", rdBroken},
+		{"report other schema", []string{"report", rdSchema}, 2, []string{"schema_version 99"}, "", rdSchema},
+		{"demo workers huge", []string{"demo", "--workers", "100000"}, 2, []string{"--workers is 100000"}, "", ""},
+	}
+}

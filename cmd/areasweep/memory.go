@@ -1,0 +1,119 @@
+package main
+
+import (
+	"bufio"
+	"fmt"
+	"os"
+	"runtime"
+	"strconv"
+	"strings"
+
+	"areasweep/extent"
+)
+
+// memoryUse is the estimate of the memory a run needs, by part.
+type memoryUse struct {
+	Mask, Valid, Accumulators, Blocks, Points int64
+}
+
+// Total returns the sum of the parts in bytes.
+func (m memoryUse) Total() int64 { return m.Mask + m.Valid + m.Accumulators + m.Blocks + m.Points }
+
+// estimateMemory is the one place that estimates the memory of a run from
+// its size; a change to the pass or the family that changes what is held
+// in memory changes it here. Parts:
+//
+//	mask          8 bytes per grid cell (one uint64 membership word)
+//	valid         1 bit per grid cell
+//	accumulators  workers x extents x (2 x layout values + 1 + 4096) bins x 16 bytes
+//	blocks        2 x workers block buffers of blockCells float64 values
+//	points        about 400 bytes per occurrence record (records, lists, results)
+//
+// layoutValues is the number of presence values plus fixed thresholds.
+func estimateMemory(cells int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
+	bins := int64(2*layoutValues+1) + histBins
+	return memoryUse{
+		Mask:         8 * cells,
+		Valid:        cells / 8,
+		Accumulators: int64(workers) * int64(extents) * bins * 16,
+		Blocks:       2 * int64(workers) * int64(blockCells) * 8,
+		Points:       400 * int64(points),
+	}
+}
+
+// maxExtents is an upper bound on the members the settings can make,
+// before the family is built.
+func (o *RunOptions) maxExtents() int {
+	n := 2 + len(sortedUniqueNonZero(o.RegionBuffers)) + len(o.PointBuffers) + len(o.HullBuffers) + len(o.Extra)
+	if o.Ecoregions != "" {
+		n += 4
+	}
+	return min(n, extent.MaxMembers)
+}
+
+func sortedUniqueNonZero(v []float64) map[float64]bool {
+	m := map[float64]bool{}
+	for _, x := range v {
+		if x != 0 {
+			m[x] = true
+		}
+	}
+	return m
+}
+
+// availableMemory returns the memory the run may use: the smaller of
+// MemAvailable (/proc/meminfo) and a cgroup limit, or 0 when unknown.
+func availableMemory() int64 {
+	var avail int64
+	if f, err := os.Open("/proc/meminfo"); err == nil {
+		sc := bufio.NewScanner(f)
+		for sc.Scan() {
+			if f := strings.Fields(sc.Text()); len(f) >= 2 && f[0] == "MemAvailable:" {
+				if kb, err := strconv.ParseInt(f[1], 10, 64); err == nil {
+					avail = kb * 1024
+				}
+			}
+		}
+		f.Close()
+	}
+	if b, err := os.ReadFile("/sys/fs/cgroup/memory.max"); err == nil {
+		if lim, err := strconv.ParseInt(strings.TrimSpace(string(b)), 10, 64); err == nil && lim > 0 && (avail == 0 || lim < avail) {
+			avail = lim
+		}
+	}
+	return avail
+}
+
+// memoryShare is the share of the available memory a run may plan to use
+// (our choice: room for GDAL's block cache and the rest of the system).
+const memoryShare = 0.8
+
+// checkMemory refuses a run whose estimate exceeds memoryShare of the
+// available memory, with the figure and what to change.
+func (s *session) checkMemory() error {
+	o, g := s.o, s.grid
+	workers := o.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	if o.ExtentsOnly {
+		workers = 0
+	}
+	layout := len(s.points) + len(o.Thresholds)
+	est := estimateMemory(int64(g.Cells()), o.maxExtents(), workers, layout, 512*512, len(s.points))
+	avail := availableMemory()
+	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
+		return nil
+	}
+	return badInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the extent masks (8 bytes per cell), "+
+		"and %d worker(s) x %d extents need %s for the scores; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
+		"or use fewer --workers or extents",
+		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Mask+est.Valid), workers, o.maxExtents(), gib(est.Accumulators)))
+}
+
+func gib(b int64) string {
+	if b >= 1<<30 {
+		return fmt.Sprintf("%.1f GiB", float64(b)/(1<<30))
+	}
+	return fmt.Sprintf("%.0f MiB", float64(b)/(1<<20))
+}

@@ -1,0 +1,122 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sync"
+	"time"
+
+	"areasweep/cmd/pass"
+	"areasweep/extent"
+	"areasweep/extent/geodesy"
+	"areasweep/extent/nullmodel"
+	"areasweep/report"
+)
+
+// farthestStep is the tile side (cells) of the one-query-per-tile bound on
+// the null's largest distance, which sets the range of its fine histogram.
+const farthestStep = 64
+
+// tallyScratch is one goroutine's row buffers for the sorting-bias tally.
+type tallyScratch struct {
+	d    []float64
+	w    []int64
+	span extent.SpanScratch
+}
+
+// tallyPool recycles the row buffers of the sorting-bias tally.
+var tallyPool = sync.Pool{New: func() any { return new(tallyScratch) }}
+
+// scoreDistanceNull scores the distance-only null as the run's i-th pass
+// (never the first: it needs the valid cells the first pass finds) through
+// the same path as a model raster, and records each extent's spatial
+// sorting bias from the same pass.
+func (s *session) scoreDistanceNull(i int) error {
+	train, _, _ := s.scoredPoints("train")
+	if len(train) == 0 {
+		s.warn("no training point is scored, so the distance-only null cannot be computed")
+		return nil
+	}
+	lats := make([]float64, len(train))
+	lons := make([]float64, len(train))
+	for j, p := range train {
+		lats[j], lons[j] = p.Lat, p.Lon
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("distance-only null: %w", err)
+	}
+	g := s.grid
+	field := nullmodel.New(ix, pass.CellCentres(g))
+	far := field.FarthestBound(g.Width, g.Height, farthestStep)
+	var bg nullmodel.Background
+	fam := s.fam
+	// Each ok member's cells of the row, taken from its runs, go to its own
+	// tally (the distance is minus the null's value).
+	rows := func(row, c0 int, vals []float64, w []int64) {
+		sc := tallyPool.Get().(*tallyScratch)
+		defer tallyPool.Put(sc)
+		for k, mem := range fam.Members {
+			if mem.Status != extent.StatusOK {
+				continue
+			}
+			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
+			if len(runs) == 0 {
+				continue
+			}
+			sc.d, sc.w = sc.d[:0], sc.w[:0]
+			for i := 0; i < len(runs); i += 2 {
+				for x := int(runs[i]) - c0; x < int(runs[i+1])-c0; x++ {
+					sc.d, sc.w = append(sc.d, 0-vals[x]), append(sc.w, w[x])
+				}
+			}
+			bg.Add(k, sc.d, sc.w)
+		}
+	}
+	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training
+	// points and the grid alone, so the same inputs give the same null
+	// Boyce index (the null has no file layout). An exact range would cost
+	// a second distance pass; a GeoTIFF copy of the null spans its exact
+	// range instead, so only its Boyce index may differ.
+	m := report.Model{Name: report.DistanceNullName, Role: report.RoleNull, NullKind: report.NullDistance}
+	if err := s.scoreSource(i, m, pass.NewVirtual(g, field), -math.Max(far, 1), 0, rows); err != nil {
+		return err
+	}
+	s.res.Settings.DistanceNull = true
+	s.sortingBias(ix, &bg)
+	return nil
+}
+
+// sortingBias records every scored extent's spatial sorting bias: the test
+// points' geodesic distances to the nearest training point (from their own
+// coordinates, as nearest_train_km) against the extent's cells' (bg).
+func (s *session) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
+	t0 := time.Now()
+	dist := make([]float64, len(s.points))
+	for j, p := range s.points {
+		if p.Status == "scored" && p.Role == "test" {
+			_, dist[j] = ix.Nearest(s.lonlat[j].Lat, s.lonlat[j].Lon, 0)
+		}
+	}
+	for k, mem := range s.fam.Members {
+		if k >= len(s.res.Extents) || mem.Status != extent.StatusOK {
+			continue
+		}
+		var test []float64
+		for j, p := range s.points {
+			if p.Status == "scored" && p.Role == "test" && s.fam.Has(k, s.cell[j]) {
+				test = append(test, dist[j])
+			}
+		}
+		sb := bg.SortingBias(k, test)
+		s.res.Extents[k].SortingBias = &report.SortingBias{Defined: sb.Defined, Reason: sb.Reason, TestPoints: sb.TestN,
+			TestMeanKm: sb.TestMeanM / 1000, TestMedianKm: sb.TestMedianM / 1000,
+			BackgroundMeanKm: sb.BackgroundMeanM / 1000, BackgroundMedianKm: sb.BackgroundMedianM / 1000,
+			RatioMean: sb.RatioMean, RatioMedian: sb.RatioMedian}
+		if sb.Defined {
+			s.logf("sorting bias on %s: test mean %.1f km, background mean %.1f km, ratio %.3f (medians %.3f)", mem.ID,
+				sb.TestMeanM/1000, sb.BackgroundMeanM/1000, sb.RatioMean, sb.RatioMedian)
+		}
+	}
+	s.logf("sorting bias on %d extents in %.1f s", len(s.fam.Members), time.Since(t0).Seconds())
+}

@@ -1,0 +1,464 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"sync"
+	"syscall"
+)
+
+// The output directory of a run is guarded so that no run loses data:
+//
+//   - --out may not be, or contain, a folder holding an input, and may not
+//     lie inside an input that is itself a folder (a FileGDB); --force does
+//     not change this.
+//   - A lock file beside --out (.NAME.areasweep-lock, holding the owner's
+//     PID) is held with flock from before the first write to the end, and
+//     removed then. A second run on the same --out is refused while the
+//     first runs. The kernel drops the lock when a process dies, so holding
+//     it proves that every staging folder of this --out left behind belongs
+//     to a dead run: those are removed at the start.
+//   - Results are written into a staging folder, named with the owner's
+//     PID, beside --out (or inside --out when it already exists, so that
+//     the final moves stay on one file system). At the end the staged
+//     entries are moved into --out. Without --force nothing in --out is
+//     replaced: a name that appeared in --out during the run stops the move
+//     and the results are kept in a visible folder. With --force the
+//     entries areasweep writes (outputNames) are replaced as a set and any
+//     other file in --out is left alone.
+
+// outputNames are the entries of --out that areasweep writes; --force
+// replaces these, and only these.
+var outputNames = []string{"results.json", "scores.csv", "extents.gpkg", "extents.csv", "extents.tif",
+	"omitted_points.gpkg", "report.html", "methods.md", "figures", "run.log"}
+
+const (
+	lockSuffix     = ".areasweep-lock"
+	stagePrefix    = ".areasweep-partial-"
+	holdPrefix     = ".areasweep-old-"
+	oldStageMarker = ".partial-" // staging folders of earlier versions: .NAME.partial-*
+)
+
+// outDir is a locked output directory and its staging folder.
+type outDir struct {
+	Out     string // as given, cleaned
+	abs     string
+	parent  string
+	name    string
+	force   bool
+	demo    bool // the demo: inputs/ is also an output entry
+	lock    *os.File
+	Stage   string
+	created []string // parent folders this run made, deepest first
+	cleaned int      // staging folders of dead runs removed
+	mu      sync.Mutex
+	done    bool
+}
+
+// active are the output directories of runs in progress, for the signal
+// handler.
+var active struct {
+	mu   sync.Mutex
+	dirs []*outDir
+}
+
+// umask is the process umask, read once at start; folders are created with
+// 0777 &^ umask like mkdir(1) does.
+var umask = readUmask()
+
+func readUmask() os.FileMode {
+	m := syscall.Umask(0)
+	syscall.Umask(m)
+	return os.FileMode(m)
+}
+
+// mkdirPerm is the mode of folders areasweep creates.
+func mkdirPerm() os.FileMode { return 0o777 &^ umask }
+
+// openOut checks --out against the inputs, locks it, removes staging
+// folders of dead runs and makes this run's staging folder.
+func openOut(out string, force bool, inputs []string) (*outDir, error) {
+	if out == "" {
+		return nil, badInput(errors.New("--out is empty; name an output directory"))
+	}
+	d := &outDir{Out: filepath.Clean(out), force: force}
+	abs, err := filepath.Abs(d.Out)
+	if err != nil {
+		return nil, badInput(fmt.Errorf("--out %s: %v", out, err))
+	}
+	d.abs = realPath(abs)
+	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
+	if d.abs == d.parent {
+		return nil, badInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
+	}
+	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
+		return nil, err
+	}
+	st, err := os.Stat(d.abs)
+	exists := err == nil
+	if exists {
+		if !st.IsDir() {
+			return nil, badInput(fmt.Errorf("--out %s exists and is not a directory", out))
+		}
+		entries, err := os.ReadDir(d.abs)
+		if err != nil {
+			return nil, badInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
+		}
+		if len(visible(entries)) > 0 && !force {
+			return nil, badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
+		}
+	} else if !errors.Is(err, os.ErrNotExist) {
+		return nil, badInput(fmt.Errorf("--out %s cannot be used: %v", out, errText(err)))
+	}
+	if err := d.makeParent(out); err != nil {
+		return nil, err
+	}
+	if err := d.takeLock(out); err != nil {
+		d.removeCreated()
+		return nil, err
+	}
+	d.cleanDead(exists)
+	where, prefix := d.parent, "."+d.name+"."+stagePrefix[1:]
+	if exists {
+		where, prefix = d.abs, stagePrefix
+	}
+	stage, err := os.MkdirTemp(where, prefix+strconv.Itoa(os.Getpid())+"-")
+	if err == nil {
+		err = os.Chmod(stage, mkdirPerm())
+	}
+	if err != nil {
+		d.release()
+		return nil, badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, where, errText(err)))
+	}
+	d.Stage = stage
+	active.mu.Lock()
+	active.dirs = append(active.dirs, d)
+	active.mu.Unlock()
+	return d, nil
+}
+
+// visible drops areasweep's own hidden entries (a staging folder of a dead
+// run, the lock file) from a listing of --out.
+func visible(entries []os.DirEntry) []os.DirEntry {
+	var v []os.DirEntry
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) {
+			continue
+		}
+		v = append(v, e)
+	}
+	return v
+}
+
+// errText is the part of a file-system error a user needs (the cause,
+// without the repeated path).
+func errText(err error) string {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	var le *os.LinkError
+	if errors.As(err, &le) {
+		return le.Err.Error()
+	}
+	return err.Error()
+}
+
+// realPath resolves symbolic links in the longest existing prefix of an
+// absolute path, so that two spellings of one folder compare equal.
+func realPath(abs string) string {
+	rest := ""
+	p := abs
+	for {
+		if r, err := filepath.EvalSymlinks(p); err == nil {
+			return filepath.Join(r, rest)
+		}
+		parent := filepath.Dir(p)
+		if parent == p {
+			return abs
+		}
+		rest = filepath.Join(filepath.Base(p), rest)
+		p = parent
+	}
+}
+
+// within reports whether path is dir or lies inside it.
+func within(path, dir string) bool {
+	if path == dir {
+		return true
+	}
+	rel, err := filepath.Rel(dir, path)
+	return err == nil && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator)) && !filepath.IsAbs(rel)
+}
+
+// checkOutVsInputs refuses an --out that is or contains the folder of an
+// input, or lies inside an input that is a folder: replacing it could
+// delete the inputs.
+func checkOutVsInputs(outAbs, out string, inputs []string) error {
+	for _, in := range inputs {
+		if in == "" || isRemote(in) {
+			continue
+		}
+		a, err := filepath.Abs(in)
+		if err != nil {
+			continue
+		}
+		a = realPath(a)
+		dir := filepath.Dir(a)
+		switch {
+		case within(dir, outAbs):
+			return badInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
+				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+		case within(outAbs, a):
+			return badInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
+		}
+	}
+	return nil
+}
+
+// isRemote reports GDAL virtual paths and URLs, which are not local files.
+func isRemote(p string) bool {
+	return strings.HasPrefix(p, "/vsi") || strings.Contains(p, "://")
+}
+
+// makeParent creates the folders above --out that are missing and records
+// them, so that a run refused later removes them again.
+func (d *outDir) makeParent(out string) error {
+	var missing []string
+	for p := d.parent; ; p = filepath.Dir(p) {
+		if _, err := os.Stat(p); err == nil {
+			break
+		}
+		missing = append(missing, p)
+		if filepath.Dir(p) == p {
+			break
+		}
+	}
+	if err := os.MkdirAll(d.parent, mkdirPerm()); err != nil {
+		return badInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
+	}
+	d.created = missing
+	return nil
+}
+
+func (d *outDir) removeCreated() {
+	for _, p := range d.created {
+		os.Remove(p) // only removes empty folders
+	}
+}
+
+// lockPath is the lock file beside --out.
+func (d *outDir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lockSuffix) }
+
+// takeLock holds an exclusive flock on the lock file beside --out, and
+// writes the owner's PID into it for the message a second run prints. The
+// file is removed when the run ends; a run that locked a file another run
+// had just removed sees that the path now names another file, and tries
+// again.
+func (d *outDir) takeLock(out string) error {
+	for try := 0; ; try++ {
+		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^umask)
+		if err != nil {
+			return badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
+		}
+		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
+			owner, _ := os.ReadFile(d.lockPath())
+			f.Close()
+			who := "another areasweep run"
+			if pid := strings.TrimSpace(string(owner)); pid != "" {
+				who += " (process " + pid + ")"
+			}
+			return badInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
+		}
+		if sameFile(f, d.lockPath()) || try == 10 {
+			f.Truncate(0)
+			f.WriteAt([]byte(strconv.Itoa(os.Getpid())+"\n"), 0)
+			d.lock = f
+			return nil
+		}
+		f.Close()
+	}
+}
+
+// sameFile reports whether the open file f is still the file at path.
+func sameFile(f *os.File, path string) bool {
+	a, err1 := f.Stat()
+	b, err2 := os.Stat(path)
+	return err1 == nil && err2 == nil && os.SameFile(a, b)
+}
+
+// cleanDead removes staging folders of this --out left by runs that died
+// (killed, power cut). Holding the lock proves their owners are gone.
+func (d *outDir) cleanDead(exists bool) {
+	var dead []string
+	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+oldStageMarker+"*")); m != nil {
+		dead = append(dead, m...)
+	}
+	if exists {
+		for _, p := range []string{stagePrefix, holdPrefix} {
+			m, _ := filepath.Glob(filepath.Join(d.abs, p+"*"))
+			dead = append(dead, m...)
+		}
+	}
+	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+"."+stagePrefix[1:]+"*")); m != nil {
+		dead = append(dead, m...)
+	}
+	for _, p := range dead {
+		if os.RemoveAll(p) == nil {
+			d.cleaned++
+		}
+	}
+}
+
+func globEscape(s string) string {
+	r := strings.NewReplacer(`\`, `\\`, `*`, `\*`, `?`, `\?`, `[`, `\[`)
+	return r.Replace(s)
+}
+
+// abort removes the staging folder and releases the lock; the previous
+// content of --out is untouched. It is safe to call more than once and
+// from the signal handler.
+func (d *outDir) abort() {
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	if d.done {
+		return
+	}
+	d.done = true
+	if d.Stage != "" {
+		os.RemoveAll(d.Stage)
+	}
+	d.release()
+}
+
+func (d *outDir) release() {
+	if d.lock != nil {
+		os.Remove(d.lockPath()) // while still holding the lock
+		d.lock.Close()          // drops the flock
+		d.lock = nil
+	}
+	d.removeCreated()
+	active.mu.Lock()
+	for i, x := range active.dirs {
+		if x == d {
+			active.dirs = append(active.dirs[:i], active.dirs[i+1:]...)
+			break
+		}
+	}
+	active.mu.Unlock()
+}
+
+// abortAll aborts every run in progress (signal handler).
+func abortAll() {
+	active.mu.Lock()
+	dirs := append([]*outDir(nil), active.dirs...)
+	active.mu.Unlock()
+	for _, d := range dirs {
+		d.abort()
+	}
+}
+
+// finish moves the staged results into --out (see the package comment at
+// the top of this file) and releases the lock.
+func (d *outDir) finish() error {
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	if d.done {
+		return errors.New("internal: output already finished")
+	}
+	d.done = true
+	defer d.release()
+	if filepath.Dir(d.Stage) == d.parent {
+		if err := os.Rename(d.Stage, d.abs); err == nil {
+			d.created = nil
+			return nil
+		} else if _, serr := os.Stat(d.abs); serr != nil {
+			os.RemoveAll(d.Stage)
+			return fmt.Errorf("cannot move the results into %s: %v", d.Out, errText(err))
+		}
+		// --out appeared during the run: move the entries in one by one.
+	}
+	d.created = nil
+	err := d.moveEntries()
+	if err != nil {
+		return err
+	}
+	os.Remove(d.Stage)
+	return nil
+}
+
+// moveEntries moves each staged entry into --out. Without --force an
+// entry whose name already exists stops everything before any move, and
+// the results are kept in a visible folder beside --out. With --force the
+// existing areasweep entries are first set aside (and put back if a move
+// fails), then deleted.
+func (d *outDir) moveEntries() error {
+	staged, err := os.ReadDir(d.Stage)
+	if err != nil {
+		return fmt.Errorf("cannot read the staged results %s: %v", d.Stage, errText(err))
+	}
+	names := map[string]bool{}
+	for _, e := range staged {
+		names[e.Name()] = true
+	}
+	var clash []string
+	for n := range names {
+		if _, err := os.Lstat(filepath.Join(d.abs, n)); err == nil {
+			clash = append(clash, n)
+		}
+	}
+	sort.Strings(clash)
+	if len(clash) > 0 && !d.force {
+		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		if err := os.Rename(d.Stage, keep); err != nil {
+			keep = d.Stage
+		}
+		return fmt.Errorf("%s gained %s during the run and --force was not given, so nothing in it was replaced; the results are in %s",
+			d.Out, strings.Join(clash, ", "), keep)
+	}
+	replace := outputNames
+	if d.demo {
+		replace = append(append([]string{}, outputNames...), "inputs")
+	}
+	hold, err := os.MkdirTemp(d.abs, holdPrefix)
+	if err != nil {
+		os.RemoveAll(d.Stage)
+		return fmt.Errorf("cannot write in %s: %v", d.Out, errText(err))
+	}
+	var setAside, moved []string
+	undo := func() {
+		for _, n := range moved {
+			os.Rename(filepath.Join(d.abs, n), filepath.Join(d.Stage, n))
+		}
+		for _, n := range setAside {
+			os.Rename(filepath.Join(hold, n), filepath.Join(d.abs, n))
+		}
+		os.RemoveAll(hold)
+		os.RemoveAll(d.Stage)
+	}
+	for _, n := range replace {
+		if _, err := os.Lstat(filepath.Join(d.abs, n)); err != nil {
+			continue
+		}
+		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
+			undo()
+			return fmt.Errorf("cannot replace %s: %v", filepath.Join(d.Out, n), errText(err))
+		}
+		setAside = append(setAside, n)
+	}
+	for _, e := range staged {
+		n := e.Name()
+		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
+			undo()
+			return fmt.Errorf("cannot move %s into %s: %v", n, d.Out, errText(err))
+		}
+		moved = append(moved, n)
+	}
+	os.RemoveAll(hold)
+	return nil
+}

@@ -1,0 +1,241 @@
+package main
+
+import (
+	"fmt"
+	"runtime"
+	"sync"
+
+	"areasweep/metrics"
+	"areasweep/report"
+)
+
+// globalTest returns, per point, its index among the run's scored test
+// points (the index the paired resamples draw), or -1.
+func (s *session) globalTest() []int {
+	g := make([]int, len(s.points))
+	n := 0
+	for j, p := range s.points {
+		g[j] = -1
+		if p.Status == "scored" && p.Role == "test" {
+			g[j] = n
+			n++
+		}
+	}
+	return g
+}
+
+// draws is the run's one set of full-size paired resamples of the test
+// points: B = --iterations, seeded by the run seed alone, so that every
+// model and extent sees the same index sets.
+func (s *session) draws() metrics.Draws {
+	return metrics.Draws{N: s.res.PointCounts.Test, B: s.o.Iterations, Seed: s.o.Seed}
+}
+
+// evaluator keeps the evaluator of model on extent for the paired
+// comparisons and returns the AUC's SD over the paired resamples.
+func (s *session) evaluator(model, ext string, acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (float64, error) {
+	ths := make([]float64, len(out.Thresholds))
+	for i, t := range out.Thresholds {
+		ths[i] = t.Value
+	}
+	ev, err := metrics.NewEvaluator(acc, test, global, ths, set)
+	if err != nil {
+		return 0, err
+	}
+	if s.evals == nil {
+		s.evals = map[[2]string]*metrics.Evaluator{}
+	}
+	s.evals[[2]string{model, ext}] = ev
+	sd, _ := ev.BootSD(s.draws())
+	return sd, nil
+}
+
+// paired fills Results.Paired: for every model and null, each scored
+// extent minus the base extent; for every extent, each pair of models
+// (earlier minus later in model order, nulls left out: they are never
+// ranked) and each model minus each null ("null" records: how far the model
+// stands above the null on the same test points). Models are taken from
+// Results.Models, so the distance-only null, scored outside s.models, takes
+// part.
+func (s *session) paired() error {
+	s.res.Paired = []report.Paired{}
+	var ids []string
+	for _, m := range s.fam.Members {
+		ids = append(ids, m.ID)
+	}
+	scored := func(model, ext string) *report.Score {
+		for i := range s.res.Scores {
+			sc := &s.res.Scores[i]
+			if sc.Model == model && sc.Extent == ext && sc.Scored {
+				return sc
+			}
+		}
+		return nil
+	}
+	all := s.res.Models
+	var models, nullModels []report.Model
+	for _, m := range all {
+		if m.IsNull() {
+			nullModels = append(nullModels, m)
+		} else {
+			models = append(models, m)
+		}
+	}
+	var okIDs []string
+	for _, id := range ids {
+		for _, m := range all {
+			if scored(m.Name, id) != nil {
+				okIDs = append(okIDs, id)
+				break
+			}
+		}
+	}
+	base := report.BaseExtent(okIDs)
+	type job struct{ kind, ma, ea, mb, eb string }
+	var jobs []job
+	for _, m := range all {
+		if scored(m.Name, base) == nil {
+			continue
+		}
+		for _, id := range okIDs {
+			if id != base && scored(m.Name, id) != nil {
+				jobs = append(jobs, job{"extent", m.Name, id, m.Name, base})
+			}
+		}
+	}
+	for _, id := range okIDs {
+		for i, a := range models {
+			for _, b := range models[i+1:] {
+				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
+					jobs = append(jobs, job{"model", a.Name, id, b.Name, id})
+				}
+			}
+		}
+	}
+	for _, id := range okIDs {
+		for _, a := range models {
+			for _, n := range nullModels {
+				if scored(a.Name, id) != nil && scored(n.Name, id) != nil {
+					jobs = append(jobs, job{report.PairedKindNull, a.Name, id, n.Name, id})
+				}
+			}
+		}
+	}
+	// Each comparison is deterministic on its own; run them on the workers
+	// and keep the results in job order.
+	out := make([][]report.Paired, len(jobs))
+	errs := make([]error, len(jobs))
+	workers := s.o.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for w := 0; w < min(workers, max(1, len(jobs))); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				j := jobs[i]
+				out[i], errs[i] = s.comparePair(j.kind, j.ma, j.ea, j.mb, j.eb)
+			}
+		}()
+	}
+	for i := range jobs {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for i := range jobs {
+		if errs[i] != nil {
+			return errs[i]
+		}
+		s.res.Paired = append(s.res.Paired, out[i]...)
+	}
+	return nil
+}
+
+// comparePair compares model ma on extent ea with model mb on extent eb on
+// their common test points (PairedRecords).
+func (s *session) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, error) {
+	a, b := s.evals[[2]string{ma, ea}], s.evals[[2]string{mb, eb}]
+	if a == nil || b == nil {
+		return nil, fmt.Errorf("paired %s: no evaluator for %s/%s or %s/%s", kind, ma, ea, mb, eb)
+	}
+	return PairedRecords(kind, ma, ea, mb, eb, a, b, s.draws(), s.o.E, s.thresholdKeys(ma))
+}
+
+// thresholdKeys returns the omission metric keys of model's thresholds, in
+// the order of its scores' Thresholds.
+func (s *session) thresholdKeys(model string) []string {
+	for _, sc := range s.res.Scores {
+		if sc.Model == model && sc.Scored {
+			keys := make([]string, len(sc.Thresholds))
+			for i, t := range sc.Thresholds {
+				keys[i] = report.MetricKeyOmission(t.Name, t.Value)
+			}
+			return keys
+		}
+	}
+	return nil
+}
+
+// PairedRecords compares evaluator a (model ma on extent ea) with b (mb on
+// eb) and returns one report.Paired per score: both AUCs from the
+// placements, the partial ROC ratio per E, the omission rate per threshold
+// (keys name them) and the Boyce index from the paired resamples d.
+func PairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
+	cmp, err := metrics.Compare(a, b, d)
+	if err != nil {
+		return nil, err
+	}
+	fa, fb := a.Full(), b.Full()
+	// shift is how much the change of test points moved the score; it is
+	// exactly 0 when both sides hold the same points.
+	same := cmp.Common == a.N() && cmp.Common == b.N()
+	shift := func(ownA, ownB, diff float64) float64 {
+		if same {
+			return 0
+		}
+		return (ownA - ownB) - diff
+	}
+	rec := func(metric string) report.Paired {
+		return report.Paired{Metric: metric, Kind: kind, Model: ma, Extent: ea, OtherModel: mb, OtherExtent: eb, CommonPoints: cmp.Common}
+	}
+	var out []report.Paired
+	place := func(metric string, iv metrics.Interval, ownA, ownB, comA, comB float64) {
+		p := rec(metric)
+		p.Method, p.Defined = "placements", iv.Defined
+		if iv.Defined {
+			p.A, p.B, p.Diff, p.SE, p.Low, p.High = comA, comB, iv.Diff, iv.SE, iv.Low, iv.High
+			p.TestSetShift = shift(ownA, ownB, iv.Diff)
+		}
+		out = append(out, p)
+	}
+	place("auc", cmp.AUC, fa.AUC, fb.AUC, cmp.AUCOn[0], cmp.AUCOn[1])
+	place("auc_unweighted", cmp.AUCUnweighted, fa.AUCUnweighted, fb.AUCUnweighted, cmp.AUCUnweightedOn[0], cmp.AUCUnweightedOn[1])
+	res := func(metric string, r metrics.Resampled, ownA, ownB float64, ownOK bool) {
+		p := rec(metric)
+		p.Method, p.Defined = "paired_resamples", r.Defined
+		p.Resamples, p.NotFormed = r.Resamples, r.NotFormed
+		if r.Defined {
+			p.A, p.B, p.Diff, p.SE, p.Low, p.High = r.A, r.B, r.Diff, r.SD, r.Low, r.High
+			if ownOK {
+				p.TestSetShift = shift(ownA, ownB, r.Diff)
+			}
+		}
+		out = append(out, p)
+	}
+	for i, e := range es {
+		if i < len(cmp.PartialROC) {
+			res(report.MetricKeyPartialROC(e), cmp.PartialROC[i], fa.Ratio[i], fb.Ratio[i], fa.RatioOK[i] && fb.RatioOK[i])
+		}
+	}
+	for t, key := range keys {
+		if t < len(cmp.Omission) {
+			res(key, cmp.Omission[t], fa.Omission[t], fb.Omission[t], true)
+		}
+	}
+	res("boyce", cmp.Boyce, fa.Boyce, fb.Boyce, fa.BoyceOK && fb.BoyceOK)
+	return out, nil
+}

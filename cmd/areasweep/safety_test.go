@@ -1,0 +1,429 @@
+package main
+
+import (
+	"bytes"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// slowArgs is a good run made slow by its bootstrap (a million iterations
+// per model and extent), so that a signal or a second run lands while it
+// is still scoring.
+func slowArgs(s *smallStudy, out string, extra ...string) []string {
+	a := []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "1000000",
+		"--region-buffers=60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--out", out}
+	return append(a, extra...)
+}
+
+// waitForStage waits until a staging folder of out exists (the run has
+// passed its checks and is working) and returns it.
+func waitForStage(t *testing.T, out string) string {
+	t.Helper()
+	deadline := time.Now().Add(60 * time.Second)
+	for time.Now().Before(deadline) {
+		for _, pat := range []string{filepath.Join(out, stagePrefix+"*"), filepath.Join(filepath.Dir(out), "."+filepath.Base(out)+"."+stagePrefix[1:]+"*")} {
+			if m, _ := filepath.Glob(pat); len(m) > 0 {
+				return m[0]
+			}
+		}
+		time.Sleep(5 * time.Millisecond)
+	}
+	t.Fatal("the run never made its staging folder")
+	return ""
+}
+
+// TestSignalsKeepEarlierResults runs a good analysis, then starts a second
+// one with --force on the same --out and stops it with SIGTERM or SIGINT
+// in the middle. The earlier results must be byte-identical, nothing
+// staged may be left, and the exit code must be 128 + the signal number.
+func TestSignalsKeepEarlierResults(t *testing.T) {
+	s := newSmallStudy(t)
+	out := filepath.Join(t.TempDir(), "res")
+	if _, se, code := runBin(t, s.args(out)...); code != 0 {
+		t.Fatalf("first run: exit %d: %s", code, se)
+	}
+	want := treeSums(t, out)
+	for _, sig := range []syscall.Signal{syscall.SIGTERM, syscall.SIGINT, syscall.SIGHUP} {
+		t.Run(sig.String(), func(t *testing.T) {
+			cmd := exec.Command(areasweepBin, slowArgs(s, out, "--force")...)
+			var se bytes.Buffer
+			cmd.Stderr = &se
+			if err := cmd.Start(); err != nil {
+				t.Fatal(err)
+			}
+			stage := waitForStage(t, out)
+			time.Sleep(100 * time.Millisecond) // inside the scoring
+			cmd.Process.Signal(sig)
+			err := cmd.Wait()
+			code := -1
+			if ee, ok := err.(*exec.ExitError); ok {
+				code = ee.ExitCode()
+			}
+			if code != 128+int(sig) {
+				t.Errorf("exit %d, want %d; stderr %s", code, 128+int(sig), se.String())
+			}
+			if !strings.Contains(se.String(), "stopped by") || forbidden.MatchString(se.String()) {
+				t.Errorf("stderr: %s", se.String())
+			}
+			if _, err := os.Stat(stage); err == nil {
+				t.Errorf("staging folder %s left behind", stage)
+			}
+			if got := treeSums(t, out); !sameSums(want, got) {
+				t.Errorf("earlier results changed: %d files before, %d after", len(want), len(got))
+			}
+			if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+			}
+		})
+	}
+}
+
+// TestConcurrentRunRefused: while one run writes to --out, a second run
+// on the same --out is refused with exit 2, naming the first run's
+// process, and changes nothing.
+func TestConcurrentRunRefused(t *testing.T) {
+	s := newSmallStudy(t)
+	out := filepath.Join(t.TempDir(), "res")
+	first := exec.Command(areasweepBin, slowArgs(s, out)...)
+	if err := first.Start(); err != nil {
+		t.Fatal(err)
+	}
+	defer first.Process.Kill()
+	waitForStage(t, out)
+	_, se, code := runBin(t, s.args(out, "--force")...)
+	if code != 2 || !strings.Contains(se, "is in use") || !strings.Contains(se, "process "+strconv.Itoa(first.Process.Pid)) {
+		t.Errorf("second run: exit %d, stderr %s", code, se)
+	}
+	first.Process.Signal(syscall.SIGTERM)
+	first.Wait()
+	if _, err := os.Stat(out); err == nil {
+		t.Error("--out exists although neither run finished")
+	}
+	if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+	// Once the first run is gone the same --out works.
+	if _, se, code := runBin(t, s.args(out)...); code != 0 {
+		t.Errorf("run after the first one stopped: exit %d: %s", code, se)
+	}
+}
+
+// TestDeadStagingRemoved: staging folders and a lock file left by runs
+// that were killed are removed by the next run of the same --out, and
+// only those: a staging folder of another --out in the same folder stays.
+func TestDeadStagingRemoved(t *testing.T) {
+	s := newSmallStudy(t)
+	parent := t.TempDir()
+	out := filepath.Join(parent, "res")
+	dead := []string{
+		filepath.Join(parent, ".res.areasweep-partial-99999-123"),
+		filepath.Join(parent, ".res.partial-456"), // earlier versions' name
+	}
+	other := filepath.Join(parent, ".other.areasweep-partial-99999-789")
+	for _, d := range append(dead, other) {
+		os.MkdirAll(filepath.Join(d, "figures"), 0o755)
+		os.WriteFile(filepath.Join(d, "results.json"), []byte("half"), 0o644)
+	}
+	os.WriteFile(filepath.Join(parent, ".res"+lockSuffix), []byte("99999\n"), 0o644)
+	if _, se, code := runBin(t, s.args(out)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	for _, d := range dead {
+		if _, err := os.Stat(d); err == nil {
+			t.Errorf("dead staging folder %s kept", d)
+		}
+	}
+	if _, err := os.Stat(other); err != nil {
+		t.Errorf("staging folder of another --out removed: %v", err)
+	}
+	if _, err := os.Stat(filepath.Join(parent, ".res"+lockSuffix)); err == nil {
+		t.Error("lock file kept after the run")
+	}
+	log, _ := os.ReadFile(filepath.Join(out, "run.log"))
+	if !strings.Contains(string(log), "removed 2 staging folder(s)") {
+		t.Errorf("run.log does not report the removal:\n%s", log)
+	}
+}
+
+// TestFinishNeverDeletesOthersFiles drives the output folder directly:
+// files that appear in --out during a run are kept, a name clash without
+// --force moves nothing and keeps the results in a visible folder, and
+// --force replaces only areasweep's own entries.
+func TestFinishNeverDeletesOthersFiles(t *testing.T) {
+	stage := func(t *testing.T, d *outDir) {
+		os.WriteFile(filepath.Join(d.Stage, "results.json"), []byte("new"), 0o644)
+		os.MkdirAll(filepath.Join(d.Stage, "figures"), 0o755)
+	}
+	t.Run("file appeared, no clash", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		d, err := openOut(out, false, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		os.MkdirAll(out, 0o755)
+		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+		if err := d.finish(); err != nil {
+			t.Fatal(err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
+			t.Error("a file put into --out during the run was lost")
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "new" {
+			t.Error("results not moved in")
+		}
+	})
+	t.Run("clash without force", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		d, err := openOut(out, false, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		os.MkdirAll(out, 0o755)
+		os.WriteFile(filepath.Join(out, "results.json"), []byte("theirs"), 0o644)
+		err = d.finish()
+		if err == nil || !strings.Contains(err.Error(), "gained results.json") {
+			t.Fatalf("finish = %v", err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "theirs" {
+			t.Error("a file that appeared during the run was replaced without --force")
+		}
+		kept := out + ".results-" + strconv.Itoa(os.Getpid())
+		if b, _ := os.ReadFile(filepath.Join(kept, "results.json")); string(b) != "new" {
+			t.Errorf("results not kept in %s", kept)
+		}
+	})
+	t.Run("force replaces only areasweep's files", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		os.MkdirAll(filepath.Join(out, "figures"), 0o755)
+		os.WriteFile(filepath.Join(out, "figures", "old.svg"), []byte("old"), 0o644)
+		os.WriteFile(filepath.Join(out, "extents.tif"), []byte("old"), 0o644)
+		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+		d, err := openOut(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		if err := d.finish(); err != nil {
+			t.Fatal(err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
+			t.Error("--force deleted a file areasweep does not write")
+		}
+		for _, gone := range []string{"figures/old.svg", "extents.tif"} {
+			if _, err := os.Stat(filepath.Join(out, gone)); err == nil {
+				t.Errorf("old %s kept next to the new results", gone)
+			}
+		}
+		if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+			t.Errorf("left behind: %v", l)
+		}
+	})
+}
+
+// TestOutputsHonourUmask: folders are made 0777 &^ umask and files
+// 0666 &^ umask, like mkdir and touch do (the staging folder used to
+// leave --out at 0700).
+func TestOutputsHonourUmask(t *testing.T) {
+	s := newSmallStudy(t)
+	old := syscall.Umask(0o027)
+	defer syscall.Umask(old)
+	out := filepath.Join(t.TempDir(), "new", "res")
+	if _, se, code := runBin(t, s.args(out)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	for path, want := range map[string]os.FileMode{out: 0o750, filepath.Dir(out): 0o750, filepath.Join(out, "figures"): 0o750, filepath.Join(out, "results.json"): 0o640} {
+		st, err := os.Stat(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st.Mode().Perm() != want {
+			t.Errorf("%s has mode %v, want %v", path, st.Mode().Perm(), want)
+		}
+	}
+}
+
+// TestInfiniteCellsAreNoData: a model with +Inf and -Inf cells scores
+// exactly like the same model with those cells set to the nodata value,
+// whichever blocks they sit in.
+func TestInfiniteCellsAreNoData(t *testing.T) {
+	s := newSmallStudy(t)
+	f := &badFixture{smallStudy: s}
+	wgs := `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+	infAt := map[int]float64{5: math.Inf(1), 17*48 + 30: math.Inf(-1), 31*48 + 1: math.Inf(1)}
+	withInf := f.rasterWith(t, "inf.tif", s.gt, wgs, func(i int) float64 {
+		if v, ok := infAt[i]; ok {
+			return v
+		}
+		return s.vals[i]
+	})
+	withNoData := f.rasterWith(t, "holes.tif", s.gt, wgs, func(i int) float64 {
+		if _, ok := infAt[i]; ok {
+			return math.NaN()
+		}
+		return s.vals[i]
+	})
+	var got [2]string
+	for k, m := range []string{withInf, withNoData} {
+		out := filepath.Join(t.TempDir(), "res")
+		args := []string{"run", "--model", "m=" + m, "--occurrences", s.occ, "--region", s.region, "--iterations", "20", "--quiet", "--out", out}
+		if _, se, code := runBin(t, args...); code != 0 {
+			t.Fatalf("%s: exit %d: %s", m, code, se)
+		}
+		b, _ := os.ReadFile(filepath.Join(out, "scores.csv"))
+		got[k] = string(b)
+	}
+	if got[0] != got[1] || got[0] == "" {
+		t.Error("infinite cells are not scored as no data")
+	}
+}
+
+// TestCrashReport: a recovered panic prints one line asking for a report,
+// exits 3 and writes the trace into a run.log, not to the terminal.
+func TestCrashReport(t *testing.T) {
+	var buf bytes.Buffer
+	code := reportCrash("index out of range [3] with length 2", []byte("goroutine 1 [running]:\nmain.x()"), &buf)
+	msg := buf.String()
+	if code != exitInternal || strings.Count(msg, "\n") != 1 || !strings.Contains(msg, "please report") || strings.Contains(msg, "goroutine") {
+		t.Fatalf("exit %d, message %q", code, msg)
+	}
+	i := strings.LastIndex(msg, "with ")
+	path := strings.TrimSpace(msg[i+len("with "):])
+	b, err := os.ReadFile(path)
+	if err != nil || !strings.Contains(string(b), "goroutine 1 [running]") || filepath.Base(path) != "run.log" {
+		t.Fatalf("trace file %s: %v %q", path, err, b)
+	}
+	os.RemoveAll(filepath.Dir(path))
+}
+
+// TestVersionAndHelp: --version works, help shows readable types and
+// defaults, and extents shows only the flags that shape the family.
+func TestVersionAndHelp(t *testing.T) {
+	so, se, code := runBin(t, "--version")
+	if code != 0 || !strings.HasPrefix(so, "areasweep ") || se != "" {
+		t.Errorf("--version: exit %d, %q %q", code, so, se)
+	}
+	vo, _, _ := runBin(t, "version")
+	if vo != so {
+		t.Errorf("version %q and --version %q differ", vo, so)
+	}
+	run, _, _ := runBin(t, "run", "--help")
+	for _, bad := range []string{"float64Slice", "[0.05", "stringArray"} {
+		if strings.Contains(run, bad) {
+			t.Errorf("run --help shows %q", bad)
+		}
+	}
+	for _, good := range []string{"--e LIST", "(default 0.05)", "--model NAME=PATH", "(default -50,50,100,250,500)"} {
+		if !strings.Contains(run, good) {
+			t.Errorf("run --help lacks %q", good)
+		}
+	}
+	root, _, _ := runBin(t, "--help")
+	if !strings.Contains(root, "Exit codes:") || !strings.Contains(root, "please report") {
+		t.Errorf("--help does not list the exit codes:\n%s", root)
+	}
+	ext, _, _ := runBin(t, "extents", "--help")
+	for _, hidden := range []string{"--iterations", "--thresholds", "--e ", "--workers", "--fraction", "--seed"} {
+		if strings.Contains(ext, hidden) {
+			t.Errorf("extents --help shows %s, which it does not use", hidden)
+		}
+	}
+}
+
+// TestLibraryMessagesStayOffTerminal: a good run whose region needs
+// GEOS's repair (a bow-tie) and holds a feature without geometry prints
+// no raw GDAL or GEOS line; the repair is reported as a warning naming
+// the feature, and the library's own words go to run.log only.
+func TestLibraryMessagesStayOffTerminal(t *testing.T) {
+	s := newSmallStudy(t)
+	region := filepath.Join(s.dir, "bowtie.geojson")
+	os.WriteFile(region, []byte(`{"type":"FeatureCollection","features":[`+
+		`{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,46.5],[18.5,41.5],[12.5,46.5],[12.5,41.5]]]}},`+
+		`{"type":"Feature","properties":{},"geometry":null}]}`), 0o644)
+	out := filepath.Join(t.TempDir(), "res")
+	args := []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", region, "--iterations", "5", "--out", out}
+	_, se, code := runBin(t, args...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	if m := forbidden.FindString(se); m != "" {
+		t.Errorf("stderr holds %q:\n%s", m, se)
+	}
+	for _, w := range []string{"bowtie.geojson feature 1 had invalid geometry", "bowtie.geojson feature 2 has no geometry"} {
+		if !strings.Contains(se, w) {
+			t.Errorf("stderr lacks %q:\n%s", w, se)
+		}
+	}
+}
+
+// TestConstantModelAndThinningSummary: a model with one value everywhere
+// runs but is warned about, and 120 duplicate presences are summarised in
+// one log line instead of one line each.
+func TestConstantModelAndThinningSummary(t *testing.T) {
+	s := newSmallStudy(t)
+	f := &badFixture{smallStudy: s}
+	wgs := `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+	flat := f.rasterWith(t, "flat.tif", s.gt, wgs, func(i int) float64 {
+		if math.IsNaN(s.vals[i]) {
+			return math.NaN()
+		}
+		return 0.5
+	})
+	var occ strings.Builder
+	occ.WriteString("lon,lat,role\n13.1,42.6,train\n14.1,43.6,train\n15.1,42.6,train\n13.5,43.0,test\n")
+	for i := 0; i < 120; i++ {
+		occ.WriteString("13.5,43.0,test\n")
+	}
+	occPath := filepath.Join(s.dir, "dups.csv")
+	os.WriteFile(occPath, []byte(occ.String()), 0o644)
+	out := filepath.Join(t.TempDir(), "res")
+	_, se, code := runBin(t, "run", "--model", "m="+flat, "--occurrences", occPath, "--region", s.region, "--iterations", "5", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	if !strings.Contains(se, "model m has the same value (0.5) on every cell") {
+		t.Errorf("no warning about the constant model:\n%s", se)
+	}
+	if n := strings.Count(se, "thinned:"); n != 1 || !strings.Contains(se, "and 110 more") {
+		t.Errorf("%d thinned lines (want one summary):\n%s", n, se)
+	}
+}
+
+// TestDemoStoppedCleansInputs: the demo writes its inputs inside the run's
+// staging folder, so a SIGTERM removes them with it.
+func TestDemoStoppedCleansInputs(t *testing.T) {
+	parent := t.TempDir()
+	out := filepath.Join(parent, "demo")
+	cmd := exec.Command(areasweepBin, "demo", "--out", out, "--quiet")
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	waitForStage(t, out)
+	cmd.Process.Signal(syscall.SIGTERM)
+	err := cmd.Wait()
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 143 {
+		// The demo may have finished before the signal; then it must be whole.
+		if err != nil {
+			t.Fatalf("demo: %v", err)
+		}
+		if _, err := os.Stat(filepath.Join(out, "inputs", "study.yaml")); err != nil {
+			t.Fatalf("demo finished without its inputs: %v", err)
+		}
+	} else if _, err := os.Stat(out); err == nil {
+		t.Error("stopped demo left --out behind")
+	}
+	entries, _ := os.ReadDir(parent)
+	for _, e := range entries {
+		if e.Name() != "demo" {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+}

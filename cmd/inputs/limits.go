@@ -1,0 +1,86 @@
+package inputs
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+)
+
+// Size limits of the text inputs. They are far above any real table or
+// study file and exist so that a wrong path (a device, a multi-gigabyte
+// file) is refused with a message instead of filling the memory.
+const (
+	// MaxOccurrenceBytes is the largest occurrence table read (512 MiB).
+	MaxOccurrenceBytes = 512 << 20
+	// MaxLineBytes is the longest line of an occurrence table (1 MiB).
+	MaxLineBytes = 1 << 20
+	// MaxStudyBytes is the largest study file read (1 MiB).
+	MaxStudyBytes = 1 << 20
+	// MaxShownChars is how much of a cell an error message quotes.
+	MaxShownChars = 60
+)
+
+// ErrTooLarge: a text input is larger than its limit, or has a line longer
+// than MaxLineBytes.
+var ErrTooLarge = errors.New("inputs: text input too large")
+
+// limitedReader returns ErrTooLarge-wrapping errors once more than max
+// bytes in total, or more than maxLine bytes without a line break, have
+// been read. It counts lines so the error can name one.
+type limitedReader struct {
+	r             io.Reader
+	max, maxLine  int64
+	n, sinceBreak int64
+	line          int
+	what          string
+}
+
+func newLimitedReader(r io.Reader, what string, max, maxLine int64) *limitedReader {
+	return &limitedReader{r: r, max: max, maxLine: maxLine, line: 1, what: what}
+}
+
+func (l *limitedReader) Read(p []byte) (int, error) {
+	n, err := l.r.Read(p)
+	for _, c := range p[:n] {
+		l.n++
+		l.sinceBreak++
+		if c == '\n' {
+			l.line++
+			l.sinceBreak = 0
+		}
+		if l.n > l.max {
+			return 0, fmt.Errorf("%w: %s is larger than %d MiB; is this the right file?", ErrTooLarge, l.what, l.max>>20)
+		}
+		if l.maxLine > 0 && l.sinceBreak > l.maxLine {
+			return 0, fmt.Errorf("%w: %s line %d is longer than %d KiB; is this the right file (a text table with one record per line)?", ErrTooLarge, l.what, l.line, l.maxLine>>10)
+		}
+	}
+	return n, err
+}
+
+// checkRegular refuses paths that are not regular files (devices, fifos
+// and directories), since they have no end or no text.
+func checkRegular(path, what string) error {
+	st, err := os.Stat(path)
+	if err != nil {
+		return nil // the open that follows reports it
+	}
+	if st.IsDir() {
+		return fmt.Errorf("inputs: %s %s is a directory, not a file", what, path)
+	}
+	if !st.Mode().IsRegular() && st.Mode()&os.ModeNamedPipe == 0 {
+		return fmt.Errorf("inputs: %s %s is not a regular file (it is a device or socket); give the path of a text file", what, path)
+	}
+	return nil
+}
+
+// shown returns s for an error message: quoted, and cut to MaxShownChars
+// characters with the full length said when longer.
+func shown(s string) string {
+	r := []rune(s)
+	if len(r) <= MaxShownChars {
+		return fmt.Sprintf("%q", s)
+	}
+	return fmt.Sprintf("%q... (%d characters)", string(r[:MaxShownChars]), len(r))
+}

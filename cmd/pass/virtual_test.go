@@ -1,0 +1,308 @@
+package pass
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"sync"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent"
+	"areasweep/extent/geodesy"
+	"areasweep/extent/nullmodel"
+	"areasweep/metrics"
+)
+
+// nullSetup makes a 300 x 200 grid of 0.01-degree cells (the pass test
+// raster's), a distance-only null on it from five training sites, and a
+// two-member family: every cell but 1 in 97 (as if clipped to valid cells)
+// and its western half.
+func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+	t.Helper()
+	g, r := openTestRaster(t, 300, 200)
+	r.Close()
+	ix, err := geodesy.NewIndex([]float64{49.5, 49.1, 48.4, 48.45, 49.9}, []float64{0.3, 1.7, 2.9, 0.05, 1.0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := nullmodel.New(ix, CellCentres(g))
+	mask := make([]uint64, g.Cells())
+	for i := range mask {
+		if i%97 != 0 {
+			mask[i] = 1
+			if i%g.Width < g.Width/2 {
+				mask[i] |= 2
+			}
+		}
+	}
+	fam := maskFamily(g, []extent.Member{{ID: "all", Status: extent.StatusOK}, {ID: "west", Status: extent.StatusOK}}, mask)
+	return g, NewVirtual(g, f), f, fam
+}
+
+// maskFamily makes a family on g from per-cell membership words (bit k:
+// member k), as row runs.
+func maskFamily(g *extent.Grid, members []extent.Member, mask []uint64) *extent.Family {
+	return extent.NewFamilyFromRuns(g, members, func(k, row int) []int32 {
+		var runs []int32
+		for c := 0; c < g.Width; c++ {
+			if mask[row*g.Width+c]>>uint(k)&1 != 0 {
+				runs = append(runs, int32(c), int32(c+1))
+			}
+		}
+		return runs
+	})
+}
+
+// writeFloat64 writes vals (row-major, NaN as no data) as a Float64 GeoTIFF
+// on g's grid, tiled in 64 x 64 blocks.
+func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
+	t.Helper()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float64, g.Width, g.Height, godal.CreationOption("TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(g.GeoTransform)
+	sr, _ := godal.NewSpatialRefFromEPSG(4326)
+	ds.SetSpatialRef(sr)
+	b := ds.Bands()[0]
+	b.SetNoData(-1e300)
+	out := make([]float64, len(vals))
+	for i, v := range vals {
+		out[i] = v
+		if math.IsNaN(v) {
+			out[i] = -1e300
+		}
+	}
+	if err := b.Write(0, 0, out, g.Width, g.Height); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestVirtualEqualsRaster is the property the null model rests on: a
+// GeoTIFF holding the null's values scores exactly what the virtual null
+// scores (values at the points bit for bit, and every accumulator: area
+// at each layout value, range, cells, area, and all metrics), for 1 and 2
+// workers, although the GeoTIFF's blocks (64 x 64) differ from the
+// virtual's (256 x 256).
+func TestVirtualEqualsRaster(t *testing.T) {
+	g, v, f, fam := nullSetup(t)
+	all := make([]float64, g.Cells())
+	f.Fill(0, 0, g.Width, g.Height, nil, all)
+	path := filepath.Join(t.TempDir(), "null.tif")
+	writeFloat64(t, g, path, all)
+	r, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	cells := []int{0, 155, 20 * 300, 50*300 + 40, 99*300 + 250, 150*300 + 7, 199*300 + 299}
+	vv, vok, _ := v.Sample(g, cells)
+	rv, rok, err := r.Sample(g, cells)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range cells {
+		if vv[i] != rv[i] || !vok[i] || !rok[i] || vv[i] != all[cells[i]] {
+			t.Errorf("cell %d: virtual %v (%v), raster %v (%v), field %v", cells[i], vv[i], vok[i], rv[i], rok[i], all[cells[i]])
+		}
+	}
+	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	describe := func(accs []*metrics.Accumulator, st Stats) string {
+		s := fmt.Sprint(st)
+		for k, a := range accs {
+			s += fmt.Sprint(a.Cells(), a.Area(), a.Min(), a.Max())
+			for _, x := range layout.Values() {
+				b, e, ab, ok := a.AreaAt(x)
+				s += fmt.Sprint(b, e, ab, ok)
+			}
+			sc, err := metrics.Score(a, vv[:3], vv[3:], metrics.Settings{Iterations: 20, Seed: uint64(k)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			s += fmt.Sprint(sc)
+		}
+		return s
+	}
+	var want string
+	for _, workers := range []int{1, 2} {
+		accs, st, err := r.Score(g, fam, layout, Options{Workers: workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		raster := describe(accs, st)
+		accs, st, err = v.Score(g, fam, layout, Options{Workers: workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		virtual := describe(accs, st)
+		if raster != virtual {
+			t.Errorf("workers=%d: the virtual null and its GeoTIFF copy score differently", workers)
+		}
+		if want == "" {
+			want = virtual
+		} else if virtual != want {
+			t.Errorf("workers=%d: virtual scores differ from 1 worker", workers)
+		}
+		if accs[0].Cells() != int64(g.Cells()-(g.Cells()+96)/97) {
+			t.Errorf("workers=%d: %d cells scored", workers, accs[0].Cells())
+		}
+	}
+}
+
+// TestRowsHook checks that Options.Rows sees every row of the grid once with
+// the values and weights the pass uses: summing weight over each member's
+// valid cells (Family.Has) gives each accumulator's area.
+func TestRowsHook(t *testing.T) {
+	g, v, _, fam := nullSetup(t)
+	layout, err := metrics.NewLayout([]float64{-1e4}, -4e5, 0, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var bg nullmodel.Background
+	seen := make([]int, g.Height)
+	var mu sync.Mutex
+	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
+		for k := range fam.Members {
+			var d []float64
+			var wk []int64
+			for i, x := range vals {
+				if fam.Has(k, row*g.Width+c0+i) {
+					d, wk = append(d, -x), append(wk, w[i])
+				}
+			}
+			bg.Add(k, d, wk)
+		}
+		mu.Lock()
+		seen[row] += len(vals)
+		mu.Unlock()
+	}}
+	accs, _, err := v.Score(g, fam, layout, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for r, n := range seen {
+		if n != g.Width {
+			t.Fatalf("row %d: %d cells seen, want %d", r, n, g.Width)
+		}
+	}
+	for k := range accs {
+		if bg.Area(k) != accs[k].Area() {
+			t.Errorf("extent %d: rows hook area %d, accumulator %d", k, bg.Area(k), accs[k].Area())
+		}
+	}
+}
+
+// BenchmarkNullPass measures a whole pass of the distance-only null (the
+// field computed on the workers, then the same scoring as a raster) on a
+// 2000 x 2000 grid of 0.01-degree cells (4 million cells, about 1 km) with
+// 200 training points in clusters, beside BenchmarkScorePass for a raster
+// of the same size: cells per second.
+func BenchmarkNullPass(b *testing.B) {
+	w, h := 2000, 2000
+	g, r := openTestRaster(b, w, h)
+	r.Close()
+	var lats, lons []float64
+	for i := range 200 {
+		cx, cy := 3+14*float64(i%5)/4, 32+14*float64((i/5)%4)/3
+		lats = append(lats, cy+0.8*math.Sin(float64(i)*1.7))
+		lons = append(lons, cx+0.8*math.Cos(float64(i)*2.3))
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
+	layout, err := metrics.NewLayout(lats, -3e6, 0, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	fam := fullFamily(g, 8)
+	for _, workers := range []int{1, 2} {
+		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", w*h, workers), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, _, err := v.Score(g, fam, layout, Options{Workers: workers}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(w*h)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+		})
+	}
+}
+
+// TestVirtualProjectedMatchesNearest checks the null's values cell by cell
+// against geodesy.Index.Nearest at each cell centre (transformed to WGS84
+// the same way), bit for bit, on projected grids where the tiles are not
+// latitude-longitude rectangles: Lambert azimuthal equal-area over Europe
+// with 2 km and 50 km cells, and a polar stereographic grid with 25 km cells
+// whose scale changes across a tile.
+func TestVirtualProjectedMatchesNearest(t *testing.T) {
+	cases := []struct {
+		name string
+		crs  string
+		gt   [6]float64
+		w, h int
+		// sites in lat/lon
+		lat0, lon0, spread float64
+	}{
+		{"laea-2km", "EPSG:3035", [6]float64{3.9e6, 2000, 0, 3.1e6, 0, -2000}, 180, 140, 48.5, 8, 1.5},
+		{"laea-50km", "EPSG:3035", [6]float64{2.5e6, 50000, 0, 5.0e6, 0, -50000}, 90, 70, 50, 10, 12},
+		{"polar-25km", "EPSG:3413", [6]float64{-2.0e6, 25000, 0, 2.0e6, 0, -25000}, 160, 160, 80, -40, 6},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			g, err := extent.NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			var lats, lons []float64
+			for i := range 15 {
+				lats = append(lats, math.Max(-89.9, math.Min(89.9, tc.lat0+tc.spread*math.Sin(float64(i)*2.1))))
+				lons = append(lons, tc.lon0+tc.spread*1.5*math.Cos(float64(i)*1.3))
+			}
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cen := CellCentres(g)
+			f := nullmodel.New(ix, cen)
+			got := make([]float64, g.Cells())
+			buf := make([]float64, 64*64)
+			for y0 := 0; y0 < g.Height; y0 += 64 {
+				for x0 := 0; x0 < g.Width; x0 += 64 {
+					w, h := min(64, g.Width-x0), min(64, g.Height-y0)
+					f.Distances(x0, y0, w, h, nil, buf)
+					for y := range h {
+						copy(got[(y0+y)*g.Width+x0:], buf[y*w:(y+1)*w])
+					}
+				}
+			}
+			lo, la := make([]float64, g.Width), make([]float64, g.Width)
+			bad := 0
+			for r := range g.Height {
+				cen(r, 0, g.Width, lo, la)
+				for c := range g.Width {
+					_, want := ix.Nearest(la[c], lo[c], 0)
+					if v := got[r*g.Width+c]; v != want && !(math.IsNaN(v) && math.IsNaN(want)) {
+						if bad < 5 {
+							t.Errorf("cell %d,%d: %v, Nearest %v", c, r, v, want)
+						}
+						bad++
+					}
+				}
+			}
+			if bad > 0 {
+				t.Errorf("%d of %d cells differ", bad, g.Cells())
+			}
+		})
+	}
+}

@@ -1,0 +1,122 @@
+package gdalmsg
+
+/*
+#cgo pkg-config: gdal
+void gdalmsgInstall(void);
+*/
+import "C"
+
+import (
+	"errors"
+	"regexp"
+	"strings"
+	"sync"
+)
+
+// Level is GDAL's message category (CPLErr).
+type Level int
+
+// GDAL's message categories.
+const (
+	Debug   Level = 1
+	Warning Level = 2
+	Failure Level = 3
+	Fatal   Level = 4
+)
+
+// Message is one message GDAL raised outside a godal call.
+type Message struct {
+	Level Level
+	Code  int
+	Text  string
+}
+
+// String renders the message as one line for a log.
+func (m Message) String() string {
+	kind := "warning"
+	if m.Level >= Failure {
+		kind = "error"
+	}
+	return "library " + kind + ": " + Cause(m.Text)
+}
+
+// maxKept bounds the messages held between two Drain calls; later ones
+// are counted only.
+const maxKept = 200
+
+var (
+	mu      sync.Mutex
+	kept    []Message
+	dropped int
+	once    sync.Once
+)
+
+// Install replaces GDAL's default message printer with the recorder. It is
+// safe to call many times; only the first call acts.
+func Install() {
+	once.Do(func() { C.gdalmsgInstall() })
+}
+
+//export gdalmsgRecord
+func gdalmsgRecord(level, code C.int, msg *C.char) {
+	m := Message{Level: Level(level), Code: int(code), Text: C.GoString(msg)}
+	if m.Level < Warning {
+		return
+	}
+	mu.Lock()
+	defer mu.Unlock()
+	if len(kept) >= maxKept {
+		dropped++
+		return
+	}
+	kept = append(kept, m)
+}
+
+// Drain returns the recorded messages and forgets them, with the number
+// of messages beyond the bound that were dropped.
+func Drain() ([]Message, int) {
+	mu.Lock()
+	defer mu.Unlock()
+	out, n := kept, dropped
+	kept, dropped = nil, 0
+	return out, n
+}
+
+// libraryWords are the library function names and prefixes removed from a
+// message: they mean nothing to a user.
+var libraryWords = regexp.MustCompile(`(?i)\b(ERROR|Warning) \d+:\s*|\bTIFF[A-Za-z0-9_]*(\(\))?:?\s*|\bsqlite3?_[A-Za-z0-9_]*(\([^)]*\))?:?\s*|\bsqlite\b:?\s*|\bGEOS[A-Za-z0-9_]*(\(\))?:?\s*|\bOGR_[A-Za-z0-9_]*:?\s*|\bGDAL[A-Za-z0-9_]*\(\):?\s*|\bproj_[A-Za-z0-9_]*:?\s*|\bPointer '[A-Za-z]+' is NULL in '[A-Za-z_]+'\.?\s*`)
+
+// maxCause bounds the length of a cause line.
+const maxCause = 240
+
+// Cause turns a library message (possibly several lines) into one line:
+// the first non-empty line with library function names removed, spaces
+// collapsed and the length bounded. Messages that only named a function
+// become "the library reported an error".
+func Cause(text string) string {
+	line := ""
+	for _, l := range strings.Split(text, "\n") {
+		if l = strings.TrimSpace(l); l != "" {
+			line = l
+			break
+		}
+	}
+	line = libraryWords.ReplaceAllString(line, "")
+	line = strings.Join(strings.Fields(line), " ")
+	line = strings.Trim(line, " :;,.")
+	if line == "" {
+		return "the library reported an error"
+	}
+	if r := []rune(line); len(r) > maxCause {
+		line = string(r[:maxCause]) + "..."
+	}
+	return line
+}
+
+// Err returns err with its text made into one plain line by Cause, or nil.
+func Err(err error) error {
+	if err == nil {
+		return nil
+	}
+	return errors.New(Cause(err.Error()))
+}

@@ -1,0 +1,51 @@
+package gdalmsg
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// TestCause checks that library prefixes and function names go and the
+// message itself stays, on one line. The inputs are messages GDAL 3.6,
+// libtiff, SQLite and GEOS print (copied from their output on damaged
+// files).
+func TestCause(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"ERROR 1: TIFFFillTile:Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024", "Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024"},
+		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "failed: database disk image is malformed"},
+		{"Self-intersection at or near point 1 1\nsecond line", "Self-intersection at or near point 1 1"},
+		{"ERROR 10: Pointer 'hGeom' is NULL in 'OGR_G_GetGeometryType'.", "the library reported an error"},
+		{"  ", "the library reported an error"},
+		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
+	} {
+		if got := Cause(c.in); got != c.want {
+			t.Errorf("Cause(%.40q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+}
+
+// TestInstallCaptures raises a GDAL error outside any godal call (opening
+// a missing file through a call godal does not wrap would need C; a
+// failed WKT parse reports through the per-call handler instead), so it
+// checks the recorder through the exported callback and that Install can
+// be called twice.
+func TestInstallCaptures(t *testing.T) {
+	godal.RegisterAll()
+	Install()
+	Install()
+	Drain()
+	gdalmsgRecordGo(3, 1, "TIFFReadDirectory: damaged")
+	gdalmsgRecordGo(1, 0, "debug line")
+	msgs, dropped := Drain()
+	if len(msgs) != 1 || dropped != 0 || msgs[0].String() != "library error: damaged" {
+		t.Fatalf("Drain = %v, %d", msgs, dropped)
+	}
+	for i := 0; i < maxKept+5; i++ {
+		gdalmsgRecordGo(2, 1, "w")
+	}
+	if msgs, dropped := Drain(); len(msgs) != maxKept || dropped != 5 {
+		t.Fatalf("bound: kept %d dropped %d", len(msgs), dropped)
+	}
+}

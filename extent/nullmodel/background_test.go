@@ -1,0 +1,108 @@
+package nullmodel
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+)
+
+// TestBackgroundBruteForce checks Mean, Median and SortingBias against a
+// direct computation written here (sums in float64, an exact weighted
+// median from the sorted cells), on random distances and weights split over
+// three extents and added row by row in two different orders.
+func TestBackgroundBruteForce(t *testing.T) {
+	r := rand.New(rand.NewPCG(21, 22))
+	n := 5000
+	dist := make([]float64, n)
+	mask := make([]uint64, n)
+	wts := make([]int64, n)
+	for i := range n {
+		dist[i] = math.Exp(1 + 12*r.Float64()) // 2.7 m to 440 km
+		mask[i] = uint64(r.IntN(8))            // extents 0..2, some cells in none
+		wts[i] = 1e9 + r.Int64N(4e9)
+	}
+	dist[7] = math.NaN()
+	var fwd, rev Background
+	for i := 0; i < n; i += 100 {
+		addMasked(&fwd, dist[i:i+100], mask[i:i+100], wts[i:i+100])
+	}
+	for i := n - 100; i >= 0; i -= 100 {
+		addMasked(&rev, dist[i:i+100], mask[i:i+100], wts[i:i+100])
+	}
+	test := []float64{900, 1500, 12000, 40000}
+	for k := range 3 {
+		if fwd.Mean(k) != rev.Mean(k) || fwd.Median(k) != rev.Median(k) {
+			t.Errorf("extent %d: row order changes the result", k)
+		}
+		type cw struct {
+			d float64
+			w int64
+		}
+		var cells []cw
+		sw, swd := 0.0, 0.0
+		for i := range n {
+			if mask[i]&(1<<uint(k)) == 0 || math.IsNaN(dist[i]) {
+				continue
+			}
+			cells = append(cells, cw{dist[i], wts[i]})
+			sw += float64(wts[i])
+			swd += float64(wts[i]) * dist[i]
+		}
+		mean := swd / sw
+		if got := fwd.Mean(k); math.Abs(got-mean) > 1e-9*mean+5e-4 {
+			t.Errorf("extent %d: mean %.6f, direct %.6f", k, got, mean)
+		}
+		slices.SortFunc(cells, func(a, b cw) int { return cmpF(a.d, b.d) })
+		cum, med := 0.0, 0.0
+		for _, c := range cells {
+			cum += float64(c.w)
+			if cum >= sw/2 {
+				med = c.d
+				break
+			}
+		}
+		if got := fwd.Median(k); math.Abs(got-med) > 2e-3*med {
+			t.Errorf("extent %d: median %.3f, direct %.3f (allowed 0.2%%: one bin either side)", k, got, med)
+		}
+		sb := fwd.SortingBias(k, test)
+		wantMean := (900 + 1500 + 12000 + 40000) / 4.0 / fwd.Mean(k)
+		wantMed := (1500 + 12000) / 2.0 / fwd.Median(k)
+		if !sb.Defined || math.Abs(sb.RatioMean-wantMean) > 1e-15 || math.Abs(sb.RatioMedian-wantMed) > 1e-15 {
+			t.Errorf("extent %d: sorting bias %+v, want ratios %v and %v", k, sb, wantMean, wantMed)
+		}
+	}
+	if sb := fwd.SortingBias(5, test); sb.Defined || sb.Reason == "" {
+		t.Errorf("extent with no cell: %+v, want undefined with a reason", sb)
+	}
+	if sb := fwd.SortingBias(0, nil); sb.Defined || sb.Reason == "" {
+		t.Errorf("no test point: %+v, want undefined with a reason", sb)
+	}
+}
+
+func cmpF(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// addMasked adds each cell to every extent k whose bit is set in its
+// membership word mask[i], one Add per extent.
+func addMasked(b *Background, dist []float64, mask []uint64, wts []int64) {
+	for k := range 64 {
+		var d []float64
+		var w []int64
+		for i, m := range mask {
+			if m>>uint(k)&1 != 0 {
+				d, w = append(d, dist[i]), append(w, wts[i])
+			}
+		}
+		if len(d) > 0 {
+			b.Add(k, d, w)
+		}
+	}
+}

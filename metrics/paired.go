@@ -1,0 +1,452 @@
+package metrics
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+)
+
+// Z975 is the 0.975 quantile of the standard normal distribution
+// (Abramowitz & Stegun 1964, table 26.1: 1.959963984540054), used for the
+// 95% intervals of paired placement differences.
+const Z975 = 1.959963984540054
+
+// Interval is a paired difference A - B with its standard error and 95%
+// interval. Defined is false (all numbers 0) when fewer than two common
+// test presences exist.
+type Interval struct {
+	// N is the number of common test presences the difference is taken on.
+	N int
+	// Diff is the mean of D_i; SE its standard error; Low and High the 95%
+	// interval.
+	Diff, SE, Low, High float64
+	Defined             bool
+}
+
+// PairedPlacements returns the paired difference of two sets of placements
+// of the same test presences (a[i] and b[i] belong to presence i):
+//
+//	D_i  = a_i - b_i
+//	Diff = mean(D)
+//	SE   = sqrt( sum_i (D_i - Diff)^2 / (n (n - 1)) )
+//	95% interval: Diff -+ z_0.975 SE
+//
+// Because each AUC is the mean of its placements, Diff is the difference of
+// the two AUCs on these presences, and SE is the presence part of DeLong's
+// variance of a difference of correlated AUCs with the backgrounds taken
+// as complete populations (DeLong, DeLong & Clarke-Pearson 1988,
+// Biometrics 44:837-845). It panics when the lengths differ.
+func PairedPlacements(a, b []float64) Interval {
+	if len(a) != len(b) {
+		panic("metrics: PairedPlacements: length mismatch")
+	}
+	n := len(a)
+	iv := Interval{N: n}
+	if n < 2 {
+		return iv
+	}
+	var s float64
+	for i := range a {
+		s += a[i] - b[i]
+	}
+	m := s / float64(n)
+	var ss float64
+	for i := range a {
+		d := a[i] - b[i] - m
+		ss += d * d
+	}
+	iv.Diff = m
+	iv.SE = math.Sqrt(ss / (float64(n) * float64(n-1)))
+	iv.Low, iv.High = m-Z975*iv.SE, m+Z975*iv.SE
+	iv.Defined = true
+	return iv
+}
+
+// Draws is one set of B full-size resamples, with replacement, of the N test
+// presences of a run (indexed 0..N-1). Resample b draws N indices with
+// math/rand/v2 PCG seeded with (Seed, b): it depends only on the seed, N
+// and b, so every model and extent sees the same index sets.
+type Draws struct {
+	N, B int
+	Seed uint64
+}
+
+// fill sets counts[g] to the number of times test presence g is drawn in
+// resample b. counts must have length N.
+func (d Draws) fill(b int, counts []int32) {
+	clear(counts)
+	rng := rand.New(rand.NewPCG(d.Seed, uint64(b)))
+	for k := 0; k < d.N; k++ {
+		counts[rng.IntN(d.N)]++
+	}
+}
+
+// Evaluator scores one model on one extent for any multiset of its test
+// presences: placements (for AUC), partial ROC ratios, omission rates at
+// fixed threshold values and the Boyce index, all from quantities fixed by
+// the background. Build one with NewEvaluator; it holds no cells and is
+// safe for concurrent use.
+type Evaluator struct {
+	ids   []int     // global index of each presence, ascending
+	order []int     // order[k]: position in the caller's test slice of ids[k]
+	v, vu []float64 // placements (area, cells), by k
+	p     *presences
+	group []int // group of presence k in p
+	es    []float64
+	// below[t][k]: presence k lies below threshold t.
+	below [][]bool
+	// Boyce: used windows and, per presence, the range of windows that
+	// hold its value (first > last when none).
+	win         []boyceWindow
+	first, last []int
+}
+
+// NewEvaluator prepares the resampled scores of one model on one extent. a
+// is the extent's accumulator, test the model's values at the extent's test
+// presences and ids their global indices in 0..N-1 of the run's Draws
+// (distinct). thresholds are the threshold values whose omission is
+// resampled (for example the Values of Scores.Thresholds); each must be a
+// layout value. s supplies E, BoyceWidth and BoyceSteps.
+func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float64, s Settings) (*Evaluator, error) {
+	if a == nil {
+		return nil, errors.New("metrics: NewEvaluator: nil accumulator")
+	}
+	if len(ids) != len(test) {
+		return nil, fmt.Errorf("metrics: NewEvaluator: %d ids for %d test presences", len(ids), len(test))
+	}
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	s = s.WithDefaults()
+	if a.cells == 0 || a.area == 0 || len(test) == 0 || a.min == a.max {
+		return nil, errors.New("metrics: NewEvaluator: the extent cannot be scored (no background, no test presences or constant suitability)")
+	}
+	l := a.layout
+	idx, err := layoutIndices(l, test, "test presence")
+	if err != nil {
+		return nil, err
+	}
+	thIdx, err := layoutIndices(l, thresholds, "threshold")
+	if err != nil {
+		return nil, err
+	}
+	n := len(test)
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortFunc(order, func(x, y int) int { return ids[x] - ids[y] })
+	e := &Evaluator{ids: make([]int, n), order: order, es: slices.Clone(s.E)}
+	sIdx := make([]int, n)
+	for k, i := range order {
+		e.ids[k] = ids[i]
+		sIdx[k] = idx[i]
+		if k > 0 && e.ids[k] == e.ids[k-1] {
+			return nil, fmt.Errorf("metrics: NewEvaluator: global index %d appears twice", e.ids[k])
+		}
+	}
+	c := newCumulative(a)
+	e.v = c.placements(sIdx, false)
+	e.vu = c.placements(sIdx, true)
+	e.p = newPresences(c, sIdx)
+	gOf := map[int]int{}
+	for g, j := range e.p.j {
+		gOf[j] = g
+	}
+	e.group = make([]int, n)
+	for k, j := range sIdx {
+		e.group[k] = gOf[j]
+	}
+	for _, tj := range thIdx {
+		b := make([]bool, n)
+		for k, j := range sIdx {
+			b[k] = j < tj
+		}
+		e.below = append(e.below, b)
+	}
+	e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	e.first, e.last = make([]int, n), make([]int, n)
+	for k, i := range order {
+		v := test[i]
+		f, lst := len(e.win), -1
+		for w, bw := range e.win {
+			if v >= bw.lo && v <= bw.hi {
+				f = min(f, w)
+				lst = w
+			}
+		}
+		e.first[k], e.last[k] = f, lst
+	}
+	return e, nil
+}
+
+// N returns the number of test presences of the evaluator.
+func (e *Evaluator) N() int { return len(e.ids) }
+
+// Values are the resampled scores of one multiset of test presences.
+// A score that cannot be formed on the multiset has its OK flag false and
+// value 0.
+type Values struct {
+	N                  int
+	AUC, AUCUnweighted float64
+	Ratio              []float64 // partial ROC ratio per E
+	RatioOK            []bool
+	Omission           []float64 // per threshold
+	Boyce              float64
+	BoyceOK            bool
+}
+
+// eval scores the multiset with count[k] copies of presence k.
+func (e *Evaluator) eval(count []int32) Values {
+	var out Values
+	out.Ratio = make([]float64, len(e.es))
+	out.RatioOK = make([]bool, len(e.es))
+	out.Omission = make([]float64, len(e.below))
+	r := 0
+	for _, c := range count {
+		r += int(c)
+	}
+	out.N = r
+	if r == 0 {
+		return out
+	}
+	rf := float64(r)
+	var sa, su float64
+	groups := make([]int, len(e.p.j))
+	for k, c := range count {
+		if c == 0 {
+			continue
+		}
+		sa += float64(c) * e.v[k]
+		su += float64(c) * e.vu[k]
+		groups[e.group[k]] += int(c)
+	}
+	out.AUC, out.AUCUnweighted = sa/rf, su/rf
+	for i, ev := range e.es {
+		pr := e.p.partialArea(groups, r, ev)
+		if pr.how == crossFormed {
+			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
+		}
+	}
+	for t, b := range e.below {
+		om := 0
+		for k, c := range count {
+			if b[k] {
+				om += int(c)
+			}
+		}
+		out.Omission[t] = float64(om) / rf
+	}
+	if len(e.win) >= 3 {
+		diff := make([]int, len(e.win)+1)
+		for k, c := range count {
+			if c == 0 || e.first[k] > e.last[k] {
+				continue
+			}
+			diff[e.first[k]] += int(c)
+			diff[e.last[k]+1] -= int(c)
+		}
+		ratio := make([]float64, len(e.win))
+		mid := make([]float64, len(e.win))
+		run := 0
+		for w, bw := range e.win {
+			run += diff[w]
+			ratio[w] = (float64(run) / rf) / bw.share
+			mid[w] = bw.mid
+		}
+		out.Boyce, out.BoyceOK, _ = boyceIndex(ratio, mid)
+	}
+	return out
+}
+
+// ones returns count 1 for every presence whose global index is in keep
+// (all presences when keep is nil).
+func (e *Evaluator) ones(keep map[int]bool) []int32 {
+	c := make([]int32, len(e.ids))
+	for k, id := range e.ids {
+		if keep == nil || keep[id] {
+			c[k] = 1
+		}
+	}
+	return c
+}
+
+// Full returns the scores on all of the evaluator's test presences.
+func (e *Evaluator) Full() Values { return e.eval(e.ones(nil)) }
+
+// BootSD returns the sample standard deviation (denominator B-1) of the
+// area-weighted AUC over the resamples of d restricted to the evaluator's
+// own presences (resamples that draw none of them are skipped), and the
+// number of resamples used. It returns 0 when fewer than 2 are used or a
+// global index lies outside 0..d.N-1.
+func (e *Evaluator) BootSD(d Draws) (float64, int) {
+	for _, id := range e.ids {
+		if id < 0 || id >= d.N {
+			return 0, 0 // ids outside the draws: nothing to resample
+		}
+	}
+	global := make([]int32, d.N)
+	own := make([]int32, len(e.ids))
+	var aucs []float64
+	for b := 0; b < d.B; b++ {
+		d.fill(b, global)
+		for k, id := range e.ids {
+			own[k] = global[id]
+		}
+		v := e.eval(own)
+		if v.N > 0 {
+			aucs = append(aucs, v.AUC)
+		}
+	}
+	if len(aucs) < 2 {
+		return 0, len(aucs)
+	}
+	_, sd := meanSD(aucs)
+	return sd, len(aucs)
+}
+
+// Resampled is the paired difference A - B of one resampled score on the
+// common test presences.
+type Resampled struct {
+	// Defined is false when the score cannot be formed on the common
+	// presences of A or of B, or fewer than 2 resamples form it.
+	Defined bool
+	// A and B are the scores on the common presences; Diff = A - B.
+	A, B, Diff float64
+	// SD is the sample SD of the resampled differences; Low and High their
+	// 2.5th and 97.5th percentiles (type 7, see Quantile).
+	SD, Low, High float64
+	// Resamples is the number of resamples drawn, NotFormed how many of
+	// them could not form the score on both sides.
+	Resamples, NotFormed int
+}
+
+// Comparison is the paired comparison of two evaluators (two extents of one
+// model, or two models on one extent) on their common test presences.
+type Comparison struct {
+	// Common is the number of test presences both evaluators hold.
+	Common int
+	// AUC and AUCUnweighted come from the placements (PairedPlacements);
+	// AUCOn and AUCUnweightedOn are the two sides' AUCs on the common
+	// presences (the means of their placements there).
+	AUC, AUCUnweighted     Interval
+	AUCOn, AUCUnweightedOn [2]float64
+	// PartialROC (per E), Omission (per threshold) and Boyce come from the
+	// paired resamples.
+	PartialROC []Resampled
+	Omission   []Resampled
+	Boyce      Resampled
+}
+
+// Compare compares a with b on their common test presences: placements for
+// the AUCs, and the B resamples of d restricted to the common presences
+// for the other scores (the same index sets for every pair, so any two
+// comparisons are paired as well). Both evaluators must come from the
+// same Settings and the same number of thresholds.
+//
+// Percentile intervals of paired bootstrap differences: Efron &
+// Tibshirani (1993) An Introduction to the Bootstrap, ch. 13.
+func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
+	if len(a.es) != len(b.es) || len(a.below) != len(b.below) {
+		return Comparison{}, errors.New("metrics: Compare: evaluators made with different settings or thresholds")
+	}
+	for _, id := range a.ids {
+		if id < 0 || id >= d.N {
+			return Comparison{}, fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
+		}
+	}
+	for _, id := range b.ids {
+		if id < 0 || id >= d.N {
+			return Comparison{}, fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
+		}
+	}
+	// Common presences by merging the sorted ids.
+	var pa, pb []int
+	for i, j := 0, 0; i < len(a.ids) && j < len(b.ids); {
+		switch {
+		case a.ids[i] < b.ids[j]:
+			i++
+		case a.ids[i] > b.ids[j]:
+			j++
+		default:
+			pa, pb = append(pa, i), append(pb, j)
+			i++
+			j++
+		}
+	}
+	cmp := Comparison{Common: len(pa)}
+	va, vb := make([]float64, len(pa)), make([]float64, len(pa))
+	ua, ub := make([]float64, len(pa)), make([]float64, len(pa))
+	for k := range pa {
+		va[k], vb[k] = a.v[pa[k]], b.v[pb[k]]
+		ua[k], ub[k] = a.vu[pa[k]], b.vu[pb[k]]
+	}
+	cmp.AUC = PairedPlacements(va, vb)
+	cmp.AUCUnweighted = PairedPlacements(ua, ub)
+	if len(pa) > 0 {
+		cmp.AUCOn = [2]float64{mean(va), mean(vb)}
+		cmp.AUCUnweightedOn = [2]float64{mean(ua), mean(ub)}
+	}
+
+	ca, cb := make([]int32, len(a.ids)), make([]int32, len(b.ids))
+	for k := range pa {
+		ca[pa[k]], cb[pb[k]] = 1, 1
+	}
+	fa, fb := a.eval(ca), b.eval(cb)
+	nE, nT := len(a.es), len(a.below)
+	cmp.PartialROC = make([]Resampled, nE)
+	cmp.Omission = make([]Resampled, nT)
+	diffs := make([][]float64, nE+nT+1)
+	for i := 0; i < nE; i++ {
+		cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
+	}
+	for t := 0; t < nT; t++ {
+		cmp.Omission[t] = Resampled{A: fa.Omission[t], B: fb.Omission[t], Defined: fa.N > 0, Resamples: d.B}
+	}
+	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
+	global := make([]int32, d.N)
+	if len(pa) > 0 {
+		for r := 0; r < d.B; r++ {
+			d.fill(r, global)
+			for k := range pa {
+				c := global[a.ids[pa[k]]]
+				ca[pa[k]], cb[pb[k]] = c, c
+			}
+			ra, rb := a.eval(ca), b.eval(cb)
+			for i := 0; i < nE; i++ {
+				if ra.RatioOK[i] && rb.RatioOK[i] {
+					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
+				}
+			}
+			if ra.N > 0 {
+				for t := 0; t < nT; t++ {
+					diffs[nE+t] = append(diffs[nE+t], ra.Omission[t]-rb.Omission[t])
+				}
+			}
+			if ra.BoyceOK && rb.BoyceOK {
+				diffs[nE+nT] = append(diffs[nE+nT], ra.Boyce-rb.Boyce)
+			}
+		}
+	}
+	finish := func(x *Resampled, ds []float64) {
+		x.NotFormed = d.B - len(ds)
+		if !x.Defined || len(ds) < 2 {
+			*x = Resampled{A: x.A, B: x.B, Resamples: x.Resamples, NotFormed: x.NotFormed}
+			return
+		}
+		x.Diff = x.A - x.B
+		_, x.SD = meanSD(ds)
+		slices.Sort(ds)
+		x.Low, x.High = quantileSorted(ds, 0.025), quantileSorted(ds, 0.975)
+	}
+	for i := range cmp.PartialROC {
+		finish(&cmp.PartialROC[i], diffs[i])
+	}
+	for t := range cmp.Omission {
+		finish(&cmp.Omission[t], diffs[nE+t])
+	}
+	finish(&cmp.Boyce, diffs[nE+nT])
+	return cmp, nil
+}

@@ -1,0 +1,289 @@
+package metrics
+
+import (
+	"encoding/json"
+	"math"
+	"math/rand/v2"
+	"os"
+	"slices"
+	"testing"
+)
+
+// TestDeLongAgainstPROC compares DeLong's variance of the unweighted AUC
+// (cells as a sample, each counted once) with pROC's
+// var(roc, method = "delong") from testdata/metrics/golden.R, on the
+// Hanley & McNeil (1982) rating data and the generated cases. pROC has no
+// weights, so each background row is replicated weight times as cells of
+// one (arbitrary) area each.
+func TestDeLongAgainstPROC(t *testing.T) {
+	cases := loadCases(t)
+	checked := 0
+	for name, rows := range loadProc(t) {
+		for _, r := range rows {
+			if r.quantity != "delong_var" {
+				continue
+			}
+			c := cases[name]
+			var rep testCase
+			for i, v := range c.bgV {
+				for k := int64(0); k < c.bgW[i]; k++ {
+					rep.bgV = append(rep.bgV, v)
+					rep.bgW = append(rep.bgW, 7)
+				}
+			}
+			rep.test, rep.train = c.test, c.train
+			_, a := build(t, rep, nil, 64)
+			sc, err := Score(a, rep.train, rep.test, quick(0.05))
+			if err != nil {
+				t.Fatal(err)
+			}
+			// Source: pROC var(roc, method = "delong").
+			if math.Abs(sc.AUCUnweightedVarDeLong-r.value) > 1e-9*r.value {
+				t.Errorf("%s: DeLong variance %.17g, pROC %.17g", name, sc.AUCUnweightedVarDeLong, r.value)
+			}
+			checked++
+		}
+	}
+	if checked < 8 {
+		t.Errorf("checked %d DeLong variances, want at least 8", checked)
+	}
+}
+
+// pairedCase mirrors one case of paired_golden.json (golden.py).
+type pairedCase struct {
+	Name           string
+	Weights        []int64
+	A, B           []int64
+	Inner          []int
+	Points         []int
+	ExtentDiff     struct{ Diff, SE float64 } `json:"extent_diff"`
+	ModelDiffOuter struct{ Diff, SE float64 } `json:"model_diff_outer"`
+	ModelDiffInner struct{ Diff, SE float64 } `json:"model_diff_inner"`
+	Scores         map[string]struct {
+		Points     []int
+		Placements []float64
+		AUC, SE    float64
+	}
+}
+
+// TestPairedAgainstNumpy checks placements, their standard errors and the
+// paired differences between extents and between models on area-weighted
+// cases against the numpy implementation in golden.py (paired_golden.json),
+// to 1e-12.
+func TestPairedAgainstNumpy(t *testing.T) {
+	data, err := os.ReadFile(goldenDir + "paired_golden.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g struct{ Cases []pairedCase }
+	if err := json.Unmarshal(data, &g); err != nil {
+		t.Fatal(err)
+	}
+	if len(g.Cases) < 3 {
+		t.Fatalf("%d paired cases", len(g.Cases))
+	}
+	for _, c := range g.Cases {
+		t.Run(c.Name, func(t *testing.T) {
+			evals := map[string]*Evaluator{}
+			for _, model := range []string{"a", "b"} {
+				vals := c.A
+				if model == "b" {
+					vals = c.B
+				}
+				f := make([]float64, len(vals))
+				for i, v := range vals {
+					f[i] = float64(v)
+				}
+				var pv []float64
+				for _, p := range c.Points {
+					pv = append(pv, f[p])
+				}
+				l, err := NewLayout(pv, slices.Min(f), slices.Max(f)+1, 64)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, ext := range []string{"outer", "inner"} {
+					acc := l.NewAccumulator()
+					for i, v := range f {
+						if ext == "outer" || c.Inner[i] == 1 {
+							acc.Add(v, c.Weights[i])
+						}
+					}
+					w := c.Scores[model+"/"+ext]
+					var test []float64
+					for _, i := range w.Points {
+						test = append(test, pv[i])
+					}
+					sc, err := Score(acc, nil, test, quick(0.1))
+					if err != nil {
+						t.Fatal(err)
+					}
+					for i := range test {
+						if !near(sc.Placements[i], w.Placements[i], 1e-12) {
+							t.Errorf("%s/%s placement %d = %.17g, numpy %.17g", model, ext, i, sc.Placements[i], w.Placements[i])
+						}
+					}
+					if !near(sc.AUC, w.AUC, 1e-12) || !near(sc.AUCSE, w.SE, 1e-12) {
+						t.Errorf("%s/%s AUC %.17g SE %.17g, numpy %.17g %.17g", model, ext, sc.AUC, sc.AUCSE, w.AUC, w.SE)
+					}
+					ev, err := NewEvaluator(acc, test, w.Points, nil, quick(0.1))
+					if err != nil {
+						t.Fatal(err)
+					}
+					evals[model+"/"+ext] = ev
+				}
+			}
+			d := Draws{N: len(c.Points), B: 20, Seed: 5}
+			check := func(what string, a, b *Evaluator, want struct{ Diff, SE float64 }) {
+				cmp, err := Compare(a, b, d)
+				if err != nil {
+					t.Fatal(err)
+				}
+				iv := cmp.AUC
+				if !iv.Defined || !near(iv.Diff, want.Diff, 1e-12) || !near(iv.SE, want.SE, 1e-12) ||
+					!near(iv.Low, want.Diff-Z975*want.SE, 1e-12) || !near(iv.High, want.Diff+Z975*want.SE, 1e-12) {
+					t.Errorf("%s: %+v, numpy diff %.17g SE %.17g", what, iv, want.Diff, want.SE)
+				}
+			}
+			check("inner minus outer (model a)", evals["a/inner"], evals["a/outer"], c.ExtentDiff)
+			check("a minus b on outer", evals["a/outer"], evals["b/outer"], c.ModelDiffOuter)
+			check("a minus b on inner", evals["a/inner"], evals["b/inner"], c.ModelDiffInner)
+		})
+	}
+}
+
+// TestPairedProperties: an extent compared with itself differs by exactly
+// 0 with SE 0 for every score; cells added below every presence raise every
+// placement by the known amount.
+func TestPairedProperties(t *testing.T) {
+	r := rand.New(rand.NewPCG(21, 22))
+	c := randomCase(r, 400, 60, 30, 1000)
+	for i := range c.test {
+		c.test[i] = math.Max(1, c.test[i])
+	}
+	ids := make([]int, len(c.test))
+	for i := range ids {
+		ids[i] = i
+	}
+	s := Settings{E: []float64{0.05, 0.2}, BoyceSteps: 30}
+	_, a := build(t, c, nil, 256)
+	ths := []float64{c.test[0], c.test[1]}
+	e1, err := NewEvaluator(a, c.test, ids, ths, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cmp, err := Compare(e1, e1, Draws{N: len(ids), B: 50, Seed: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if cmp.Common != len(ids) || cmp.AUC.Diff != 0 || cmp.AUC.SE != 0 || cmp.AUCUnweighted.Diff != 0 || cmp.AUCUnweighted.SE != 0 {
+		t.Errorf("self comparison of AUC: %+v %+v", cmp.AUC, cmp.AUCUnweighted)
+	}
+	for _, x := range append(append(slices.Clone(cmp.PartialROC), cmp.Omission...), cmp.Boyce) {
+		if x.Diff != 0 || x.SD != 0 || x.Low != 0 || x.High != 0 {
+			t.Errorf("self comparison of a resampled score: %+v", x)
+		}
+	}
+
+	// Adding cells of area A_add below every presence (value 0; every test
+	// value is >= 1) turns V_i = (W(<v)+W(=v)/2)/W into
+	// (W(<v)+A_add+W(=v)/2)/(W+A_add), so
+	// V'_i = (V_i W + A_add)/(W + A_add) (algebra from the definition).
+	sc, err := Score(a, nil, c.test, quick(0.1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := a.Clone()
+	const add = 12345
+	for k := 0; k < 5; k++ {
+		b.Add(0, add)
+	}
+	sc2, err := Score(b, nil, c.test, quick(0.1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	W, A := float64(a.Area()), float64(5*add)
+	for i, v := range sc.Placements {
+		if want := (v*W + A) / (W + A); !near(sc2.Placements[i], want, 1e-13) || !(sc2.Placements[i] > v) {
+			t.Fatalf("placement %d: %v -> %v, want %v", i, v, sc2.Placements[i], want)
+		}
+	}
+}
+
+// TestBootSDMatchesPlacementSE: on a large case the SD of the AUC over
+// full-size paired resamples agrees with the placement SE within Monte
+// Carlo error. With B resamples the SD's own relative standard error is
+// about 1/sqrt(2(B-1)) (normal theory), 3.2% for B = 500; we allow 4 such
+// errors plus 1/n for the bootstrap's (n-1)/n bias (our tolerance).
+func TestBootSDMatchesPlacementSE(t *testing.T) {
+	r := rand.New(rand.NewPCG(41, 42))
+	c := randomCase(r, 3000, 400, 10, 100000)
+	ids := make([]int, len(c.test))
+	for i := range ids {
+		ids[i] = i
+	}
+	_, a := build(t, c, nil, 256)
+	sc, err := Score(a, nil, c.test, quick(0.1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev, err := NewEvaluator(a, c.test, ids, nil, quick(0.1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	const B = 500
+	sd, used := ev.BootSD(Draws{N: len(ids), B: B, Seed: 9})
+	tol := 4/math.Sqrt(2*(B-1)) + 1/float64(len(ids))
+	if used != B || math.Abs(sd/sc.AUCSE-1) > tol {
+		t.Errorf("bootstrap SD %v over %d resamples, placement SE %v: ratio %v, want within %v of 1", sd, used, sc.AUCSE, sd/sc.AUCSE, tol)
+	}
+	// The evaluator reproduces Score on the full set.
+	full := ev.Full()
+	if !near(full.AUC, sc.AUC, 1e-12) || !near(full.AUCUnweighted, sc.AUCUnweighted, 1e-12) {
+		t.Errorf("evaluator AUC %v/%v, Score %v/%v", full.AUC, full.AUCUnweighted, sc.AUC, sc.AUCUnweighted)
+	}
+}
+
+// TestEvaluatorMatchesScore: the evaluator's partial ROC, omission and
+// Boyce on the full set equal Score's.
+func TestEvaluatorMatchesScore(t *testing.T) {
+	r := rand.New(rand.NewPCG(51, 52))
+	for it := 0; it < 10; it++ {
+		c := randomCase(r, 300, 20+r.IntN(40), 15, 50+r.IntN(5000))
+		_, a := build(t, c, []float64{25}, 512)
+		s := Settings{E: []float64{0.05, 0.1, 0.3}, Iterations: 20, FixedThresholds: []float64{25}}
+		sc, err := Score(a, c.train, c.test, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !sc.Scored {
+			continue
+		}
+		var ths []float64
+		for _, th := range sc.Thresholds {
+			ths = append(ths, th.Value)
+		}
+		ids := make([]int, len(c.test))
+		for i := range ids {
+			ids[i] = len(ids) - 1 - i
+		}
+		ev, err := NewEvaluator(a, c.test, ids, ths, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := ev.Full()
+		for i, p := range sc.PartialROC {
+			if f.RatioOK[i] != p.Formed || f.Ratio[i] != p.Ratio {
+				t.Errorf("case %d E=%v: evaluator %v/%v, Score %v/%v", it, p.E, f.Ratio[i], f.RatioOK[i], p.Ratio, p.Formed)
+			}
+		}
+		for i, th := range sc.Thresholds {
+			if f.Omission[i] != th.Omission {
+				t.Errorf("case %d %s: omission %v, Score %v", it, th.Name, f.Omission[i], th.Omission)
+			}
+		}
+		if f.BoyceOK != sc.Boyce.Defined || f.Boyce != sc.Boyce.Index {
+			t.Errorf("case %d: Boyce %v/%v, Score %v/%v", it, f.Boyce, f.BoyceOK, sc.Boyce.Index, sc.Boyce.Defined)
+		}
+	}
+}

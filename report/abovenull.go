@@ -1,0 +1,294 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strings"
+)
+
+// PairedKindNull is the Paired.Kind of a model minus a null on one extent
+// (Model minus OtherModel, the null, on the same test points).
+const PairedKindNull = "null"
+
+// Readings of a model-minus-null interval (AboveNull, NullGap).
+const (
+	ReadingAbove     = "above"     // 95% interval wholly above 0
+	ReadingNotAbove  = "not_above" // 95% interval includes 0
+	ReadingBelow     = "below"     // 95% interval wholly below 0
+	ReadingUndefined = "undefined" // no paired difference could be formed
+)
+
+// AboveNull is how far one model stands above one null on one metric, per
+// extent, from the paired records of kind PairedKindNull: the difference
+// model minus null on the test points both hold, with its 95% interval
+// (placements for AUC, paired resamples for the partial ROC ratio). The
+// per-extent readings are tests of each difference against 0; how the gap
+// moves across extents (Smallest, Largest) is a description.
+type AboveNull struct {
+	Metric   string `json:"metric"` // "auc" or a partial ROC key
+	Model    string `json:"model"`
+	Null     string `json:"null"`
+	NullKind string `json:"null_kind"`
+	// BaseExtent is Sensitivity.BaseExtent; BaseReading the reading there.
+	BaseExtent  string `json:"base_extent"`
+	BaseReading string `json:"base_reading"`
+	// Gaps holds one difference per scored extent, in family order.
+	Gaps []NullGap `json:"gaps"`
+	// Above, NotAbove, Below count the extents by reading; Defined counts
+	// those with a difference.
+	Above    int `json:"above"`
+	NotAbove int `json:"not_above"`
+	Below    int `json:"below"`
+	Defined  int `json:"defined"`
+	// SmallestExtent and LargestExtent are the extents of smallest and
+	// largest area with a defined difference (a description of the trend).
+	SmallestExtent string `json:"smallest_extent"`
+	LargestExtent  string `json:"largest_extent"`
+	// Sentence says it in words.
+	Sentence string `json:"sentence"`
+}
+
+// NullGap is one extent's model-minus-null difference.
+type NullGap struct {
+	Extent       string  `json:"extent"`
+	AreaKm2      float64 `json:"area_km2"`
+	CommonPoints int     `json:"common_points"`
+	Method       string  `json:"method"`
+	Defined      bool    `json:"defined"`
+	// ModelValue and NullValue are the two scores on the common points.
+	ModelValue float64 `json:"model_value"`
+	NullValue  float64 `json:"null_value"`
+	Diff       float64 `json:"diff"`
+	SE         float64 `json:"se"`
+	Low        float64 `json:"ci_low"`
+	High       float64 `json:"ci_high"`
+	Reading    string  `json:"reading"`
+}
+
+// gapReading reads a defined interval against 0.
+func gapReading(lo, hi float64) string {
+	switch {
+	case lo > 0:
+		return ReadingAbove
+	case hi < 0:
+		return ReadingBelow
+	}
+	return ReadingNotAbove
+}
+
+// aboveNullMetrics are the metrics compared with the nulls: AUC and the
+// partial ROC ratio at every E.
+func (a *analysis) aboveNullMetrics() []MetricInfo {
+	var out []MetricInfo
+	for _, m := range a.metrics {
+		if m.Kind == "auc" || m.Kind == "partial_roc" {
+			out = append(out, m)
+		}
+	}
+	return out
+}
+
+// aboveNull builds every model x null x metric comparison over the
+// scored extents ids.
+func (a *analysis) aboveNull(ids []string) []AboveNull {
+	out := []AboveNull{}
+	for _, m := range a.aboveNullMetrics() {
+		for _, model := range a.models {
+			for _, n := range nulls(a.r) {
+				an := AboveNull{Metric: m.Key, Model: model, Null: n.Name, NullKind: n.NullKind, BaseExtent: a.base,
+					BaseReading: ReadingUndefined, Gaps: []NullGap{}}
+				small, large := math.Inf(1), math.Inf(-1)
+				for _, id := range ids {
+					p := a.pairedFor(m.Key, PairedKindNull, model, id, n.Name, id)
+					if p == nil {
+						continue
+					}
+					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined}
+					if i, ok := a.extIndex[id]; ok {
+						g.AreaKm2 = a.r.Extents[i].AreaKm2
+					}
+					if p.Defined {
+						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
+						g.Reading = gapReading(p.Low, p.High)
+						an.Defined++
+						switch g.Reading {
+						case ReadingAbove:
+							an.Above++
+						case ReadingBelow:
+							an.Below++
+						default:
+							an.NotAbove++
+						}
+						if g.AreaKm2 < small {
+							small, an.SmallestExtent = g.AreaKm2, id
+						}
+						if g.AreaKm2 > large {
+							large, an.LargestExtent = g.AreaKm2, id
+						}
+					}
+					if id == a.base {
+						an.BaseReading = g.Reading
+					}
+					an.Gaps = append(an.Gaps, g)
+				}
+				if len(an.Gaps) == 0 {
+					continue
+				}
+				an.Sentence = aboveNullSentence(a.r, m, &an)
+				out = append(out, an)
+			}
+		}
+	}
+	return out
+}
+
+// gap returns the gap of an on extent id, or nil.
+func (an *AboveNull) gap(id string) *NullGap {
+	for i := range an.Gaps {
+		if an.Gaps[i].Extent == id {
+			return &an.Gaps[i]
+		}
+	}
+	return nil
+}
+
+// aboveNullSentence says whether the model beats the null on the base
+// extent (a test of the difference against 0) and how the gap moves from
+// the smallest to the largest extent (a description).
+func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
+	var b strings.Builder
+	null := modelLabel(r, an.Null)
+	g := an.gap(an.BaseExtent)
+	score := metricPhrase(m)
+	switch {
+	case g == nil || !g.Defined:
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
+	case an.BaseReading == ReadingAbove:
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+	case an.BaseReading == ReadingBelow:
+		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+	default:
+		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+	}
+	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
+		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
+		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (smallest) to %s on %s (largest); the model is above the null beyond noise on %d, within noise on %d and below on %d (a description of this family of extents).",
+			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below)
+	}
+	return b.String()
+}
+
+// metricPhrase names metric m inside a sentence: "AUC", "the partial ROC
+// ratio at E = 0.05".
+func metricPhrase(m MetricInfo) string {
+	if m.Kind == "partial_roc" {
+		return "the partial ROC ratio at E = " + fmtG(m.E)
+	}
+	return m.Label
+}
+
+// aboveNullHeadline is the headline's sentence on the nulls: AUC only, one
+// clause per model and null.
+func aboveNullHeadline(s *Sensitivity) string {
+	var parts []string
+	for i := range s.AboveNull {
+		an := &s.AboveNull[i]
+		if an.Metric != "auc" {
+			continue
+		}
+		g := an.gap(an.BaseExtent)
+		if g == nil || !g.Defined {
+			continue
+		}
+		verb := "does not beat"
+		if an.BaseReading == ReadingAbove {
+			verb = "beats"
+		}
+		part := fmt.Sprintf("%s %s %s on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
+			signed3(g.Diff), signed3(g.Low), signed3(g.High))
+		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
+			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
+			part += fmt.Sprintf("; the gap moves from %s on %s to %s on %s", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
+		}
+		parts = append(parts, part)
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return " Against the null: " + strings.Join(parts, "; ") + "."
+}
+
+// aboveNullRows gives the full "model minus null" table of the Analysis
+// section: one row per metric, model, null and extent.
+func aboveNullRows(r *Results) [][]cell {
+	var rows [][]cell
+	if r.Sensitivity == nil {
+		return nil
+	}
+	for _, an := range r.Sensitivity.AboveNull {
+		for _, g := range an.Gaps {
+			row := []cell{tc(an.Metric), tc(an.Model), tc(modelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
+			if g.Defined {
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signed3(g.Low)+" to "+signed3(g.High)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
+			} else {
+				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
+			}
+			rows = append(rows, row)
+		}
+	}
+	return rows
+}
+
+// aboveNullSummary gives the summary's "model minus null per extent"
+// table: one row per extent (family order) and one column per model and
+// null with the AUC difference, its 95% interval and the reading.
+func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
+	if r.Sensitivity == nil {
+		return nil, nil
+	}
+	var cols []*AboveNull
+	for i := range r.Sensitivity.AboveNull {
+		if an := &r.Sensitivity.AboveNull[i]; an.Metric == "auc" && an.Defined > 0 {
+			cols = append(cols, an)
+		}
+	}
+	if len(cols) == 0 {
+		return nil, nil
+	}
+	head = []string{"extent", "area"}
+	for _, an := range cols {
+		head = append(head, an.Model+" − "+an.Null)
+	}
+	for _, e := range r.Extents {
+		var row []cell
+		has := false
+		for _, an := range cols {
+			g := an.gap(e.ID)
+			if g == nil || !g.Defined {
+				row = append(row, dash)
+				continue
+			}
+			has = true
+			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signed3(g.Low), signed3(g.High), strings.ReplaceAll(g.Reading, "_", " ")),
+				num: g.Diff, isN: true, cls: "n"})
+		}
+		if has {
+			rows = append(rows, append([]cell{tc(e.ID), areaCell(e.AreaKm2)}, row...))
+		}
+	}
+	return head, rows
+}
+
+// aboveNullNote explains the table.
+const aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
+	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
+	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0. " +
+	"Each row is a test of one difference against 0; how the gap changes from extent to extent is a description."
+
+// aboveNullSummaryNote explains the summary table.
+const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
+	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
+	"\"below\" when it lies wholly below 0. The partial ROC ratio and every sentence are under Analysis, Model minus null."

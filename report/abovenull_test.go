@@ -1,0 +1,122 @@
+package report
+
+import (
+	"strings"
+	"testing"
+)
+
+// TestAboveNullReadings feeds model-minus-null paired records with chosen
+// intervals to Analyze and checks the readings against 0 (wholly above,
+// including 0, wholly below), the counts, the smallest and largest extents
+// by area, the base sentence and headline, the page's table and the
+// figure; and that a record of an unknown kind or a partial ROC record
+// does not enter the AUC summary.
+func TestAboveNullReadings(t *testing.T) {
+	r := withNull(t)
+	model := r.Models[0].Name
+	var ok []Extent
+	for _, e := range r.Extents {
+		if e.Status == "ok" {
+			ok = append(ok, e)
+		}
+	}
+	if len(ok) < 3 {
+		t.Fatalf("sample has %d usable extents", len(ok))
+	}
+	base := BaseExtent(func() []string {
+		var ids []string
+		for _, e := range ok {
+			ids = append(ids, e.ID)
+		}
+		return ids
+	}())
+	want := map[string]string{}
+	below := 0
+	for i, e := range ok {
+		p := Paired{Metric: "auc", Kind: PairedKindNull, Model: model, Extent: e.ID, OtherModel: DistanceNullName, OtherExtent: e.ID,
+			CommonPoints: 10, Method: "placements", Defined: true, A: 0.8, B: 0.7}
+		switch {
+		case e.ID == base:
+			p.Diff, p.SE, p.Low, p.High = 0.1, 0.02, 0.06, 0.14
+			want[e.ID] = ReadingAbove
+		case i%2 == 0:
+			p.Diff, p.SE, p.Low, p.High = 0.01, 0.02, -0.03, 0.05
+			want[e.ID] = ReadingNotAbove
+		default:
+			p.Diff, p.SE, p.Low, p.High = -0.1, 0.02, -0.14, -0.06
+			want[e.ID] = ReadingBelow
+			below++
+		}
+		r.Paired = append(r.Paired, p)
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	var an *AboveNull
+	for i := range r.Sensitivity.AboveNull {
+		if a := &r.Sensitivity.AboveNull[i]; a.Metric == "auc" && a.Model == model {
+			an = a
+		}
+	}
+	if an == nil {
+		t.Fatalf("no AUC summary: %+v", r.Sensitivity.AboveNull)
+	}
+	if an.BaseReading != ReadingAbove || an.Defined != len(ok) || an.Below != below || an.Above != 1 || an.NotAbove != len(ok)-1-below {
+		t.Errorf("summary %+v", an)
+	}
+	small, large := ok[0], ok[0]
+	for _, e := range ok {
+		if e.AreaKm2 < small.AreaKm2 {
+			small = e
+		}
+		if e.AreaKm2 > large.AreaKm2 {
+			large = e
+		}
+	}
+	if an.SmallestExtent != small.ID || an.LargestExtent != large.ID {
+		t.Errorf("smallest %s largest %s, want %s and %s", an.SmallestExtent, an.LargestExtent, small.ID, large.ID)
+	}
+	for _, g := range an.Gaps {
+		if g.Reading != want[g.Extent] {
+			t.Errorf("%s: reading %s, want %s", g.Extent, g.Reading, want[g.Extent])
+		}
+	}
+	if !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is above") {
+		t.Errorf("sentence: %s", an.Sentence)
+	}
+	if !strings.Contains(r.Sensitivity.Headline, model+" beats "+DistanceNullName+" on "+base) {
+		t.Errorf("headline: %s", r.Sensitivity.Headline)
+	}
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval +0.060 to +0.140, against "+DistanceNullName+") is above the null beyond noise") {
+		t.Errorf("reviewer reply: %s", rv)
+	}
+	if rows := aboveNullRows(r); len(rows) != len(ok) {
+		t.Errorf("table rows %d, want %d", len(rows), len(ok))
+	}
+	if _, rows := aboveNullSummary(r); len(rows) != len(ok) {
+		t.Errorf("table rows %d, want %d", len(rows), len(ok))
+	}
+	found := false
+	for _, f := range figures(r) {
+		found = found || f.Name == "model_minus_null"
+	}
+	if !found {
+		t.Error("no model_minus_null figure")
+	}
+
+	// A null that the model does not beat on the base extent.
+	for i := range r.Paired {
+		if r.Paired[i].Kind == PairedKindNull && r.Paired[i].Extent == base {
+			r.Paired[i].Low = -0.01
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(r.Sensitivity.Headline, model+" does not beat "+DistanceNullName+" on "+base) {
+		t.Errorf("headline: %s", r.Sensitivity.Headline)
+	}
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval -0.010 to +0.140, against "+DistanceNullName+") does not exceed the null's beyond noise") {
+		t.Errorf("reviewer reply: %s", rv)
+	}
+}

@@ -1,0 +1,536 @@
+package report
+
+import (
+	"encoding/base64"
+	"fmt"
+	"image"
+	"math"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// maxOutlines is the most extent outlines in one map panel: one per
+// colour of lineColors, so no colour repeats in a panel.
+var maxOutlines = len(lineColors)
+
+// outline is a set of straight segments in data coordinates drawn with one
+// line style: the boundary of an extent on the preview grid.
+type outline struct {
+	segs [][4]float64
+	ls   draw.LineStyle
+}
+
+// Plot implements plot.Plotter.
+func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	for _, s := range o.segs {
+		c.StrokeLine2(o.ls, trX(s[0]), trY(s[1]), trX(s[2]), trY(s[3]))
+	}
+}
+
+// decodePreview decodes the preview values and masks.
+func decodePreview(pv *Preview) (vals []byte, masks [][]bool, err error) {
+	n := pv.Width * pv.Height
+	if pv.Width <= 0 || pv.Height <= 0 {
+		return nil, nil, fmt.Errorf("report: preview has size %dx%d", pv.Width, pv.Height)
+	}
+	vals, err = base64.StdEncoding.DecodeString(pv.Values)
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: preview values: %w", err)
+	}
+	if len(vals) != n {
+		return nil, nil, fmt.Errorf("report: preview values hold %d bytes, want %d", len(vals), n)
+	}
+	for k, m := range pv.Masks {
+		bits, err := base64.StdEncoding.DecodeString(m)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: preview mask %d: %w", k, err)
+		}
+		if len(bits)*8 < n {
+			return nil, nil, fmt.Errorf("report: preview mask %d holds %d bits, want %d", k, len(bits)*8, n)
+		}
+		mk := make([]bool, n)
+		for i := range mk {
+			mk[i] = bits[i/8]&(1<<(uint(i)%8)) != 0
+		}
+		masks = append(masks, mk)
+	}
+	return vals, masks, nil
+}
+
+// maskEdges returns the boundary of a mask as merged horizontal and
+// vertical runs in preview coordinates (col, row from the north-west).
+// A boundary edge separates a cell in the mask from one outside (or from the
+// edge of the grid).
+func maskEdges(m []bool, w, h int) [][4]float64 {
+	in := func(c, r int) bool { return c >= 0 && r >= 0 && c < w && r < h && m[r*w+c] }
+	var segs [][4]float64
+	// Horizontal edges: the line y = r between rows r-1 and r.
+	for r := 0; r <= h; r++ {
+		start := -1
+		for c := 0; c <= w; c++ {
+			edge := c < w && in(c, r-1) != in(c, r)
+			if edge && start < 0 {
+				start = c
+			}
+			if !edge && start >= 0 {
+				segs = append(segs, [4]float64{float64(start), float64(r), float64(c), float64(r)})
+				start = -1
+			}
+		}
+	}
+	// Vertical edges: the line x = c between columns c-1 and c.
+	for c := 0; c <= w; c++ {
+		start := -1
+		for r := 0; r <= h; r++ {
+			edge := r < h && in(c-1, r) != in(c, r)
+			if edge && start < 0 {
+				start = r
+			}
+			if !edge && start >= 0 {
+				segs = append(segs, [4]float64{float64(c), float64(start), float64(c), float64(r)})
+				start = -1
+			}
+		}
+	}
+	return segs
+}
+
+// pointXY returns the grid-CRS coordinates of a point's cell centre.
+func pointXY(g Grid, p Point) (float64, float64) {
+	gt := g.GeoTransform
+	c, r := float64(p.Col)+0.5, float64(p.Row)+0.5
+	return gt[0] + c*gt[1] + r*gt[2], gt[3] + c*gt[4] + r*gt[5]
+}
+
+// mapGroup is one map panel: a nested chain (or a part of one, or the
+// extents in no chain) with the indices of its extents in Results.Extents.
+type mapGroup struct {
+	title   string
+	members []int
+}
+
+// mapGroups puts the usable extents into panels: one per nested chain in
+// family order, then the extents in no chain; a group of more than
+// maxOutlines extents is split into parts.
+func mapGroups(r *Results) []mapGroup {
+	var order []string
+	byChain := map[string][]int{}
+	for i, e := range r.Extents {
+		if e.Status != "ok" {
+			continue
+		}
+		if _, ok := byChain[e.Chain]; !ok {
+			order = append(order, e.Chain)
+		}
+		byChain[e.Chain] = append(byChain[e.Chain], i)
+	}
+	var gs []mapGroup
+	for _, ch := range order {
+		if ch == "" {
+			continue
+		}
+		gs = append(gs, splitGroup("nested chain "+ch, byChain[ch])...)
+	}
+	if m := byChain[""]; len(m) > 0 {
+		gs = append(gs, splitGroup("extents in no chain", m)...)
+	}
+	return gs
+}
+
+func splitGroup(title string, members []int) []mapGroup {
+	if len(members) <= maxOutlines {
+		return []mapGroup{{title: title, members: members}}
+	}
+	parts := (len(members) + maxOutlines - 1) / maxOutlines
+	var gs []mapGroup
+	for k := range parts {
+		lo, hi := k*len(members)/parts, (k+1)*len(members)/parts
+		gs = append(gs, mapGroup{title: fmt.Sprintf("%s (part %d of %d)", title, k+1, parts), members: members[lo:hi]})
+	}
+	return gs
+}
+
+// omittedAt returns the ids of the test points model omits at threshold.
+func omittedAt(r *Results, model, threshold string) map[int]bool {
+	out := map[int]bool{}
+	for _, o := range r.Omissions {
+		if o.Model == model && o.Threshold == threshold {
+			for _, id := range o.Omitted {
+				out[id] = true
+			}
+		}
+	}
+	return out
+}
+
+// mapMarks are the point layers of every map panel.
+type mapMarks struct {
+	layers []mapLayer
+}
+
+type mapLayer struct {
+	label string
+	xys   plotter.XYs
+	gs    draw.GlyphStyle
+	halo  bool
+}
+
+// mapPoints builds the point layers: training and test points, and the
+// test points the mapped model omits at each training-presence threshold.
+func mapPoints(r *Results, model string) mapMarks {
+	mtp := omittedAt(r, model, "minimum_training_presence")
+	p10 := omittedAt(r, model, "p10_training_presence")
+	var tr, te, om1, om10 plotter.XYs
+	for _, pt := range r.Points {
+		if pt.Status != "scored" || pt.Row < 0 || pt.Col < 0 {
+			continue
+		}
+		x, y := pointXY(r.Grid, pt)
+		xy := plotter.XY{X: x, Y: y}
+		switch pt.Role {
+		case "train":
+			tr = append(tr, xy)
+		case "test":
+			te = append(te, xy)
+			if mtp[pt.ID] {
+				om1 = append(om1, xy)
+			}
+			if p10[pt.ID] {
+				om10 = append(om10, xy)
+			}
+		}
+	}
+	none := func(xys plotter.XYs) string {
+		if len(xys) == 0 {
+			return " (none)"
+		}
+		return fmt.Sprintf(" (%d)", len(xys))
+	}
+	return mapMarks{layers: []mapLayer{
+		{"training point", tr, draw.GlyphStyle{Color: ink, Radius: vg.Points(1.6), Shape: draw.RingGlyph{}}, true},
+		{"test point", te, draw.GlyphStyle{Color: ink, Radius: vg.Points(1.9), Shape: draw.PyramidGlyph{}}, true},
+		{"test point omitted at the 10th percentile training presence" + none(om10), om10, draw.GlyphStyle{Color: ink, Radius: vg.Points(4.2), Shape: strokedGlyph{square: false, width: vg.Points(1.2)}}, true},
+		{"test point omitted at the minimum training presence" + none(om1), om1, draw.GlyphStyle{Color: ink, Radius: vg.Points(5.8), Shape: strokedGlyph{square: true, width: vg.Points(1.2)}}, true},
+	}}
+}
+
+// mapScene holds what every map panel shares: the preview as an image,
+// the extent masks, the bounds and aspect, and the point layers.
+type mapScene struct {
+	r                        *Results
+	img                      *image.RGBA
+	masks                    [][]bool
+	west, south, east, north float64
+	aspect                   float64 // km per unit in x over km per unit in y
+	marks                    mapMarks
+}
+
+// outlineStyle is the k-th outline of a panel.
+func outlineStyle(k int) draw.LineStyle {
+	return lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])
+}
+
+// newMapScene decodes the preview.
+func newMapScene(r *Results, model string) (*mapScene, error) {
+	pv := r.Preview
+	vals, masks, err := decodePreview(pv)
+	if err != nil {
+		return nil, err
+	}
+	img := image.NewRGBA(image.Rect(0, 0, pv.Width, pv.Height))
+	for i, v := range vals {
+		c := noDataColor
+		if v != 255 {
+			c = suitabilityRamp(float64(v) / 254)
+		}
+		img.Set(i%pv.Width, i/pv.Width, c)
+	}
+	m := &mapScene{r: r, img: img, masks: masks, aspect: 1, marks: mapPoints(r, model)}
+	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
+	if r.Grid.Geographic {
+		m.aspect = math.Cos((m.north + m.south) / 2 * math.Pi / 180)
+	}
+	return m, nil
+}
+
+// outlines returns the outline of every extent of group g, in the grid CRS.
+func (m *mapScene) outlines(g mapGroup) ([]*outline, []legendItem) {
+	w, h := m.r.Preview.Width, m.r.Preview.Height
+	cw, ch := (m.east-m.west)/float64(w), (m.north-m.south)/float64(h)
+	var os []*outline
+	var items []legendItem
+	for k, ei := range g.members {
+		if ei >= len(m.masks) {
+			continue
+		}
+		segs := maskEdges(m.masks[ei], w, h)
+		for q := range segs {
+			segs[q] = [4]float64{m.west + segs[q][0]*cw, m.north - segs[q][1]*ch, m.west + segs[q][2]*cw, m.north - segs[q][3]*ch}
+		}
+		o := &outline{segs: segs, ls: outlineStyle(k)}
+		os = append(os, o)
+		items = append(items, legendItem{m.r.Extents[ei].ID, lineThumb{o.ls}})
+	}
+	return os, items
+}
+
+// addMarks adds the point layers to p, each over a white halo where asked.
+func (m *mapScene) addMarks(p *plot.Plot) error {
+	for _, l := range m.marks.layers {
+		if len(l.xys) == 0 {
+			continue
+		}
+		styles := []draw.GlyphStyle{l.gs}
+		if l.halo {
+			styles = []draw.GlyphStyle{haloOf(l.gs), l.gs}
+		}
+		for _, gs := range styles {
+			sc, err := plotter.NewScatter(l.xys)
+			if err != nil {
+				return fmt.Errorf("report: figure map: %w", err)
+			}
+			sc.GlyphStyle = gs
+			p.Add(sc)
+		}
+	}
+	return nil
+}
+
+// panel draws group g in cell: the map with its outline legend below. It
+// returns the map's scale in km per point (0 off geographic grids).
+func (m *mapScene) panel(g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
+	legC, mapC := splitBottom(cell, legendH)
+	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
+	p.Add(plotter.NewImage(m.img, m.west, m.south, m.east, m.north))
+	if m.r.Grid.Geographic {
+		p.X.Tick.Marker = degreeTicks{Lon: true}
+		p.Y.Tick.Marker = degreeTicks{}
+	} else {
+		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
+	}
+	os, items := m.outlines(g)
+	for _, o := range os {
+		p.Add(o)
+	}
+	if err := m.addMarks(p); err != nil {
+		return 0, err
+	}
+	fitAspect(p, mapC, m.west, m.south, m.east, m.north, m.aspect)
+	p.Draw(mapC)
+	da := p.DataCanvas(mapC)
+	legC.Min.X = da.Min.X
+	drawLegendRows(legC, legendRows(items, legC.Max.X-legC.Min.X))
+	if !m.r.Grid.Geographic {
+		return 0, nil
+	}
+	return (p.X.Max - p.X.Min) * m.aspect * KmPerDegree / float64(da.Max.X-da.Min.X), nil
+}
+
+// mapFigure draws the extents as small multiples: one panel per nested
+// chain over the first model's suitability, with the points.
+func mapFigure(r *Results) (figure, bool) {
+	pv := r.Preview
+	groups := mapGroups(r)
+	if pv == nil || len(groups) == 0 {
+		return figure{}, false
+	}
+	model := ""
+	if len(r.Models) > 0 {
+		model = r.Models[0].Name
+	}
+	cols := min(2, len(groups))
+	rows := (len(groups) + cols - 1) / cols
+	f := figure{Name: "extent_maps", Title: "Maps of the extents", W: twoColumns}
+	if cols == 1 {
+		f.W = oneColumn
+	}
+	west, south, east, north := pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
+	aspect := 1.0
+	if r.Grid.Geographic {
+		aspect = math.Cos((north + south) / 2 * math.Pi / 180)
+	}
+	// Each panel: title, map (aspect kept), its outline legend.
+	cellW := f.W / vg.Length(cols)
+	dataW := cellW - vg.Points(44)
+	legendRowsMax := 1
+	for _, g := range groups {
+		var items []legendItem
+		for k, ei := range g.members {
+			items = append(items, legendItem{r.Extents[ei].ID, lineThumb{outlineStyle(k)}})
+		}
+		legendRowsMax = max(legendRowsMax, len(legendRows(items, dataW)))
+	}
+	legendH := vg.Length(legendRowsMax)*legendRowHeight + vg.Points(4)
+	dataH := min(dataW*vg.Length((north-south)/((east-west)*aspect)), 100*vg.Millimeter)
+	cellH := dataH + vg.Points(42) + legendH
+	var shared []legendItem
+	for _, l := range mapPoints(r, model).layers {
+		shared = append(shared, legendItem{l.label, glyphThumb{gs: l.gs}})
+	}
+	sharedRows := legendRows(shared, f.W/2)
+	keyH := 16 * vg.Millimeter // colour bar
+	if r.Grid.Geographic {
+		keyH = 30 * vg.Millimeter // colour bar, scale bar and north arrow
+	}
+	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, keyH) + vg.Points(4)
+	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
+	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together), each outline in its own colour and dash. "+
+		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
+		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
+		"Outlines follow the coarse copy's cells, so they are drawn to within one of its cells.", model, model)
+	if r.Grid.Geographic {
+		f.Caption += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
+	}
+	f.draw = func(dc draw.Canvas) error {
+		m, err := newMapScene(r, model)
+		if err != nil {
+			return err
+		}
+		bottom, rest := splitBottom(dc, bottomH)
+		rest.Max.Y -= vg.Points(2)
+		var kmPerPt float64
+		for gi, g := range groups {
+			cell := rest
+			cell.Min.X = rest.Min.X + vg.Length(gi%cols)*cellW
+			cell.Max.X = cell.Min.X + cellW
+			cell.Max.Y = rest.Max.Y - vg.Length(gi/cols)*cellH
+			cell.Min.Y = cell.Max.Y - cellH
+			if kmPerPt, err = m.panel(g, cell, legendH); err != nil {
+				return err
+			}
+		}
+		// Shared key: point marks, suitability colour bar, scale and north.
+		keyC, barC := splitRight(bottom, f.W/2)
+		keyC.Max.Y -= vg.Points(6)
+		barC.Min.X += vg.Points(8)
+		drawLegendRows(keyC, sharedRows)
+		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
+		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model)
+		if kmPerPt > 0 {
+			drawScaleBar(scaleC, kmPerPt)
+		}
+		return nil
+	}
+	return f, true
+}
+
+// fitAspect sets the axis ranges of p so that the data keep their aspect
+// (aspect = km per x unit / km per y unit) in canvas c, widening whichever
+// range has room to spare.
+func fitAspect(p *plot.Plot, c draw.Canvas, west, south, east, north, aspect float64) {
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = west, east, south, north
+	da := p.DataCanvas(c)
+	dw, dh := float64(da.Max.X-da.Min.X), float64(da.Max.Y-da.Min.Y)
+	xr, yr := (east-west)*aspect, north-south
+	if dw/dh > xr/yr {
+		need := yr * dw / dh / aspect
+		pad := (need - (east - west)) / 2
+		p.X.Min, p.X.Max = west-pad, east+pad
+	} else {
+		need := xr * dh / dw
+		pad := (need - (north - south)) / 2
+		p.Y.Min, p.Y.Max = south-pad, north+pad
+	}
+}
+
+// drawSuitabilityBar draws a horizontal colour bar of the suitability
+// ramp from lo to hi in c.
+func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string) {
+	if !(hi > lo) {
+		hi = lo + 1
+	}
+	const n = 128
+	img := image.NewRGBA(image.Rect(0, 0, n, 1))
+	for x := range n {
+		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/n))
+	}
+	p := newPlot("", c.Max.X-c.Min.X)
+	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = lo, hi, 0, 1
+	p.HideY()
+	p.X.Label.Text = "suitability, model " + model
+	bc := c
+	da := p.DataCanvas(bc)
+	bc.Min.Y += (da.Max.Y - da.Min.Y) - 3*vg.Millimeter
+	bc.Max.X -= vg.Points(10)
+	p.Draw(bc)
+}
+
+// drawScaleBar draws a scale bar of a round length and a north arrow in c,
+// at kmPerPt kilometres per point.
+func drawScaleBar(c draw.Canvas, kmPerPt float64) {
+	target := 0.4 * float64(c.Max.X-c.Min.X) * kmPerPt
+	km := math.Pow10(int(math.Floor(math.Log10(target))))
+	for _, m := range []float64{5, 2, 1} {
+		if m*km <= target {
+			km *= m
+			break
+		}
+	}
+	length := vg.Length(km / kmPerPt)
+	x0 := c.Min.X + vg.Points(10)
+	y := c.Min.Y + vg.Points(12)
+	ls := lineStyle(ink, 1, nil)
+	c.StrokeLine2(ls, x0, y, x0+length, y)
+	for _, x := range []vg.Length{x0, x0 + length/2, x0 + length} {
+		c.StrokeLine2(ls, x, y, x, y+vg.Points(3))
+	}
+	sty := textStyle(minFontPt)
+	sty.XAlign = draw.XCenter
+	c.FillText(sty, vg.Point{X: x0, Y: y + vg.Points(5)}, "0")
+	c.FillText(sty, vg.Point{X: x0 + length, Y: y + vg.Points(5)}, fmtTick(km, 0)+" km")
+	// North arrow, to the right of the bar.
+	ax := x0 + length + vg.Points(40)
+	c.FillPolygon(ink, []vg.Point{{X: ax, Y: y + vg.Points(16)}, {X: ax - vg.Points(4), Y: y}, {X: ax, Y: y + vg.Points(4)}, {X: ax + vg.Points(4), Y: y}})
+	sty.YAlign = draw.YBottom
+	c.FillText(sty, vg.Point{X: ax, Y: y + vg.Points(18)}, "N")
+}
+
+// strokedGlyph is an open circle or square drawn with a heavier line than
+// gonum's ring, so that omission marks stand out among the points.
+type strokedGlyph struct {
+	square bool
+	width  vg.Length
+}
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (g strokedGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	ls := draw.LineStyle{Color: sty.Color, Width: g.width}
+	r := sty.Radius
+	if g.square {
+		c.StrokeLines(ls, []vg.Point{{X: pt.X - r, Y: pt.Y - r}, {X: pt.X + r, Y: pt.Y - r}, {X: pt.X + r, Y: pt.Y + r}, {X: pt.X - r, Y: pt.Y + r}, {X: pt.X - r, Y: pt.Y - r}})
+		return
+	}
+	var p vg.Path
+	p.Move(vg.Point{X: pt.X + r, Y: pt.Y})
+	p.Arc(pt, r, 0, 2*math.Pi)
+	p.Close()
+	c.SetLineStyle(ls)
+	c.Stroke(p)
+}
+
+// haloGlyph is a white outline under a mark, so it stays visible on the
+// dark parts of the map and over other points.
+type haloGlyph struct{ inner draw.GlyphDrawer }
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (h haloGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	switch g := h.inner.(type) {
+	case strokedGlyph:
+		g.width += vg.Points(1)
+		sty.Radius -= vg.Points(0.7)
+		g.DrawGlyph(c, sty, pt)
+	case draw.RingGlyph:
+		draw.CircleGlyph{}.DrawGlyph(c, sty, pt)
+	default:
+		g.DrawGlyph(c, sty, pt)
+	}
+}
+
+func haloOf(gs draw.GlyphStyle) draw.GlyphStyle {
+	return draw.GlyphStyle{Color: colorWhite, Radius: gs.Radius + vg.Points(0.7), Shape: haloGlyph{gs.Shape}}
+}

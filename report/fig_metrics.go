@@ -1,0 +1,303 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// metricPoint is one marker of the score-against-area figure.
+type metricPoint struct {
+	area, v float64
+	lo, hi  float64 // the bar, when bar is true
+	bar     bool
+}
+
+// metricPoints returns model's values of metric m on the scored extents,
+// by area. AUC carries plus and minus its bootstrap SD; partial ROC is the
+// mean of the bootstrap resamples with their 2.5th to 97.5th percentiles,
+// so that point and bar come from the same resamples.
+func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
+	scored := map[string]bool{}
+	for _, id := range r.Sensitivity.ScoredExtents {
+		scored[id] = true
+	}
+	var pts []metricPoint
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		if sc.Model != model || !sc.Scored || !scored[sc.Extent] || sc.AreaKm2 <= 0 {
+			continue
+		}
+		if p, ok := metricPointOf(m, sc, r.Settings.Iterations); ok {
+			p.area = sc.AreaKm2
+			pts = append(pts, p)
+		}
+	}
+	sort.SliceStable(pts, func(i, j int) bool { return pts[i].area < pts[j].area })
+	return pts
+}
+
+func metricPointOf(m MetricInfo, sc *Score, iterations int) (metricPoint, bool) {
+	switch m.Kind {
+	case "auc":
+		p := metricPoint{v: sc.AUC}
+		if iterations >= 2 {
+			p.lo, p.hi, p.bar = sc.AUC-sc.AUCBootSD, sc.AUC+sc.AUCBootSD, true
+		}
+		return p, true
+	case "auc_unweighted":
+		return metricPoint{v: sc.AUCUnweighted}, true
+	case "partial_roc":
+		for _, pr := range sc.PartialROC {
+			if math.Abs(pr.E-m.E) > 1e-12 || pr.Iterations-pr.NotFormed < 1 {
+				continue
+			}
+			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: pr.Iterations-pr.NotFormed >= 2}, true
+		}
+	case "omission", "area_fraction":
+		for _, t := range sc.Thresholds {
+			if t.Name != m.Threshold || (t.Name == "fixed" && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
+				continue
+			}
+			if m.Kind == "area_fraction" {
+				return metricPoint{v: t.AreaFraction}, true
+			}
+			if t.N > 0 {
+				return metricPoint{v: t.Omission}, true
+			}
+		}
+	case "boyce":
+		if sc.Boyce != nil {
+			return metricPoint{v: sc.Boyce.Index}, true
+		}
+	}
+	return metricPoint{}, false
+}
+
+// valueRange returns the y range of a panel of metric kind from the data
+// lo..hi: shares span 0 to 1; other metrics span their data, widened to a
+// sensible minimum and snapped to whole tick steps, within the metric's
+// possible values.
+func valueRange(kind string, lo, hi float64) (float64, float64) {
+	switch kind {
+	case "omission", "area_fraction":
+		// Shares: the whole 0 to 1, a little wider so that markers at 0
+		// or 1 clear the axis.
+		return -0.04, 1.04
+	}
+	minSpan, floor, ceil := 0.04, math.Inf(-1), math.Inf(1)
+	switch kind {
+	case "auc", "auc_unweighted":
+		floor, ceil = 0, 1
+	case "partial_roc":
+		floor = 0
+	case "boyce":
+		minSpan, floor, ceil = 0.1, -1, 1
+	}
+	if hi-lo < minSpan {
+		mid := (lo + hi) / 2
+		lo, hi = mid-minSpan/2, mid+minSpan/2
+	}
+	pad := 0.06 * (hi - lo)
+	lo, hi = lo-pad, hi+pad
+	step, _ := niceStep(lo, hi)
+	lo, hi = math.Floor(lo/step+1e-9)*step, math.Ceil(hi/step-1e-9)*step
+	return math.Max(lo, floor), math.Min(hi, ceil)
+}
+
+// areaAxis returns the divisor and unit of an area axis whose largest
+// value is max km².
+func areaAxis(max float64) (float64, string) {
+	if max >= 1e4 {
+		return 1e3, "extent area (1000 km²)"
+	}
+	return 1, "extent area (km²)"
+}
+
+// metricPanel is one metric's data: its points per model.
+type metricPanel struct {
+	m   MetricInfo
+	pts [][]metricPoint // per model, in Sensitivity.ModelNames order
+	// nulls holds each null's values against the extent area (km²), in
+	// Results.Models order: drawn as grey dotted reference lines.
+	nulls []plotter.XYs
+}
+
+// metricPanels returns the metrics that have at least one point, and the
+// largest extent area among their points.
+func metricPanels(r *Results) ([]metricPanel, float64) {
+	s := r.Sensitivity
+	var panels []metricPanel
+	maxArea := 0.0
+	for _, m := range s.Metrics {
+		pn := metricPanel{m: m, pts: make([][]metricPoint, len(s.ModelNames))}
+		any := false
+		for i, model := range s.ModelNames {
+			pn.pts[i] = metricPoints(r, m, model)
+			for _, p := range pn.pts[i] {
+				any = true
+				maxArea = math.Max(maxArea, p.area)
+			}
+		}
+		for _, nm := range nulls(r) {
+			xys := nullSeries(r, m, nm.Name)
+			pn.nulls = append(pn.nulls, xys)
+			for _, xy := range xys {
+				any = true
+				maxArea = math.Max(maxArea, xy.X)
+			}
+		}
+		if any {
+			panels = append(panels, pn)
+		}
+	}
+	return panels, maxArea
+}
+
+// plot draws the panel: per model a line through the points on a log area
+// axis (areas divided by div), bars where the metric has them.
+func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Plot, error) {
+	p := newPlot(upperFirst(pn.m.Label), titleW)
+	p.X.Scale = plot.LogScale{}
+	p.X.Tick.Marker = logTicks{}
+	p.X.Label.Text = unit
+	lo, hi := math.Inf(1), math.Inf(-1)
+	amin, amax := math.Inf(1), math.Inf(-1)
+	nm := len(pn.pts)
+	for i, pts := range pn.pts {
+		if len(pts) == 0 {
+			continue
+		}
+		// Models sit a few percent apart on the area axis so that their
+		// bars do not overlap.
+		shift := math.Pow(2, 0.05*(float64(i)-float64(nm-1)/2))
+		xys := make(plotter.XYs, len(pts))
+		var ep errPoints
+		for q, pt := range pts {
+			x := pt.area / div * shift
+			xys[q] = plotter.XY{X: x, Y: pt.v}
+			lo, hi = math.Min(lo, pt.v), math.Max(hi, pt.v)
+			amin, amax = math.Min(amin, pt.area/div), math.Max(amax, pt.area/div)
+			if pt.bar {
+				ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: pt.v})
+				ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, pt.v-pt.lo), High: math.Max(0, pt.hi-pt.v)})
+				lo, hi = math.Min(lo, pt.lo), math.Max(hi, pt.hi)
+			}
+		}
+		l, sc, err := plotter.NewLinePoints(xys)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure metrics: %w", err)
+		}
+		l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
+		sc.GlyphStyle = markerStyle(i)
+		p.Add(l)
+		if len(ep.XYs) > 0 {
+			eb, err := plotter.NewYErrorBars(ep)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
+			eb.CapWidth = vg.Points(3)
+			p.Add(eb)
+		}
+		p.Add(sc)
+	}
+	for j, xys := range pn.nulls {
+		if len(xys) == 0 {
+			continue
+		}
+		pts := make(plotter.XYs, len(xys))
+		for q, xy := range xys {
+			pts[q] = plotter.XY{X: xy.X / div, Y: xy.Y}
+			lo, hi = math.Min(lo, xy.Y), math.Max(hi, xy.Y)
+			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
+		}
+		l, sc, err := plotter.NewLinePoints(pts)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure metrics: %w", err)
+		}
+		l.LineStyle, sc.GlyphStyle = nullLineStyle(j)
+		p.Add(l, sc)
+	}
+	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
+	p.X.Min, p.X.Max = amin/1.25, amax*1.25
+	return p, nil
+}
+
+// metricsFigure draws one panel per metric: value against extent area.
+func metricsFigure(r *Results) figure {
+	s := r.Sensitivity
+	panels, maxArea := metricPanels(r)
+	cols := min(3, max(1, len(panels)))
+	rows := max(1, (len(panels)+cols-1)/cols)
+	f := figure{Name: "metrics_vs_area", Title: "Each score against extent area", W: twoColumns}
+	if cols == 1 {
+		f.W = oneColumn
+	}
+	var items []legendItem
+	for i, model := range s.ModelNames {
+		ls := lineStyle(modelColor(i), 1, modelDash(i))
+		items = append(items, legendItem{"model " + model, glyphThumb{gs: markerStyle(i), line: &ls}})
+	}
+	for j, nm := range nulls(r) {
+		ls, gs := nullLineStyle(j)
+		items = append(items, legendItem{modelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
+	}
+	legend := legendRows(items, f.W)
+	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+	f.H = min(maxHeight, legendH+vg.Length(rows)*52*vg.Millimeter)
+	f.Caption = metricsCaption(r)
+	div, unit := areaAxis(maxArea)
+	panelW := f.W / vg.Length(cols)
+	f.draw = func(dc draw.Canvas) error {
+		top, rest := splitTop(dc, legendH)
+		drawLegendRows(top, legend)
+		plots := make([][]*plot.Plot, rows)
+		for j := range plots {
+			plots[j] = make([]*plot.Plot, cols)
+		}
+		for k, pn := range panels {
+			p, err := pn.plot(panelW-vg.Points(30), div, unit)
+			if err != nil {
+				return err
+			}
+			plots[k/cols][k%cols] = p
+		}
+		drawTiles(plots, rest)
+		return nil
+	}
+	return f
+}
+
+// markerStyle is model i's marker.
+func markerStyle(i int) draw.GlyphStyle {
+	return draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)}
+}
+
+// errPoints pairs points with asymmetric vertical error offsets.
+type errPoints struct {
+	plotter.XYs
+	plotter.YErrors
+}
+
+func metricsCaption(r *Results) string {
+	st := r.Settings
+	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
+		"every score uses the test records inside that extent (counts in the Extents table). "
+	if st.Iterations >= 2 {
+		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d bootstrap resamples of %s%% of the test records, "+
+			"wider than the uncertainty of the full-sample AUC drawn as the point. "+
+			"Partial ROC: the point is the mean ratio of those %d resamples and the bar spans their 2.5th to 97.5th percentiles; "+
+			"the full-sample ratio is in the tables. ",
+			st.Iterations, fmtG(100*st.ResampleFraction), st.Iterations)
+	}
+	c += "Omission and predicted area at a threshold have no bar: the threshold comes from the training records alone. " +
+		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
+		"Extents that were not scored are left out."
+	return c
+}

@@ -1,0 +1,145 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// nullGapPlot draws the "model minus null per extent" figure: for every
+// model and null, the paired AUC difference model minus null (from
+// Sensitivity.AboveNull) against the extent area (log scale), with its
+// 95% interval as a vertical bar and a line at 0. It returns nil when the
+// results hold no defined model-minus-null difference.
+func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
+	if r.Sensitivity == nil {
+		return nil, nil, nil
+	}
+	var items []legendItem
+	maxArea := 0.0
+	for _, an := range r.Sensitivity.AboveNull {
+		for _, g := range an.Gaps {
+			maxArea = math.Max(maxArea, g.AreaKm2)
+		}
+	}
+	div, unit := areaAxis(maxArea)
+	p := newPlot("AUC: model minus null, on the same test points", w)
+	p.X.Scale = plot.LogScale{}
+	p.X.Tick.Marker = logTicks{}
+	p.X.Label.Text = unit
+	p.Y.Label.Text = "AUC difference (model − null)"
+	modelIndex := map[string]int{}
+	for i, m := range r.Sensitivity.ModelNames {
+		modelIndex[m] = i
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	nulls := map[string]int{}
+	drawn := 0
+	for _, an := range r.Sensitivity.AboveNull {
+		if an.Metric != "auc" {
+			continue
+		}
+		j, ok := nulls[an.Null]
+		if !ok {
+			j = len(nulls)
+			nulls[an.Null] = j
+		}
+		i := modelIndex[an.Model]
+		var gaps []NullGap
+		for _, g := range an.Gaps {
+			if g.Defined && g.AreaKm2 > 0 {
+				gaps = append(gaps, g)
+			}
+		}
+		if len(gaps) == 0 {
+			continue
+		}
+		sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
+		// A small horizontal offset per series keeps the bars apart.
+		shift := math.Pow(2, 0.03*float64(i+3*j))
+		xys := make(plotter.XYs, len(gaps))
+		var ep struct {
+			plotter.XYs
+			plotter.YErrors
+		}
+		for k, g := range gaps {
+			x := g.AreaKm2 / div * shift
+			xys[k] = plotter.XY{X: x, Y: g.Diff}
+			ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: g.Diff})
+			ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+		l, sc, err := plotter.NewLinePoints(xys)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+		}
+		dashes := modelDash(i)
+		if j > 0 {
+			dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
+		}
+		l.LineStyle = lineStyle(modelColor(i), 1, dashes)
+		sc.GlyphStyle = markerStyle(i)
+		eb, err := plotter.NewYErrorBars(ep)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+		}
+		eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
+		eb.CapWidth = vg.Points(3)
+		p.Add(l, sc, eb)
+		ls, gs := l.LineStyle, sc.GlyphStyle
+		items = append(items, legendItem{an.Model + " − " + modelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
+		drawn++
+	}
+	if drawn == 0 {
+		return nil, nil, nil
+	}
+	zero, err := plotter.NewLine(plotter.XYs{{X: lo / 1.25, Y: 0}, {X: hi * 1.25, Y: 0}})
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+	}
+	zero.LineStyle = draw.LineStyle{Color: nullZeroGrey, Width: vg.Points(0.8)}
+	p.Add(zero)
+	p.X.Min, p.X.Max = lo/1.25, hi*1.25
+	return p, items, nil
+}
+
+// nullZeroGrey draws the line at 0 of the model-minus-null figure.
+var nullZeroGrey = color.Gray{Y: 100}
+
+// nullGapFigures returns the report's "model minus null per extent"
+// figure (nullGapPlot), or nothing when no AUC difference between a model
+// and a null is defined.
+func nullGapFigures(r *Results) []figure {
+	has := false
+	if r.Sensitivity != nil {
+		for _, an := range r.Sensitivity.AboveNull {
+			has = has || (an.Metric == "auc" && an.Defined > 0)
+		}
+	}
+	if !has {
+		return nil
+	}
+	f := figure{Name: "model_minus_null", Title: "Model minus null per extent",
+		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale). " +
+			"Vertical bars: 95% interval from the per-point placements. Bars wholly above 0: the model beats the null on that extent.",
+		W: twoColumns, H: 90 * vg.Millimeter}
+	f.draw = func(c draw.Canvas) error {
+		p, items, err := nullGapPlot(r, f.W-vg.Points(30))
+		if err != nil || p == nil {
+			return err
+		}
+		// The legend sits above the panel, outside the data.
+		legend := legendRows(items, f.W)
+		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
+		drawLegendRows(top, legend)
+		p.Draw(rest)
+		return nil
+	}
+	return []figure{f}
+}

@@ -1,0 +1,182 @@
+package report
+
+import (
+	"fmt"
+	"image"
+	"image/color"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// rocExtents returns the usable extents in order of area.
+func rocExtents(r *Results) []Extent {
+	var es []Extent
+	for _, e := range r.Extents {
+		if e.Status == "ok" {
+			es = append(es, e)
+		}
+	}
+	sort.SliceStable(es, func(i, j int) bool { return es[i].AreaKm2 < es[j].AreaKm2 })
+	return es
+}
+
+func findCurve(r *Results, model, extent string) *Curve {
+	for i := range r.Curves {
+		if r.Curves[i].Model == model && r.Curves[i].Extent == extent {
+			return &r.Curves[i]
+		}
+	}
+	return nil
+}
+
+func scoredFor(r *Results, model, extent string) bool {
+	for _, s := range r.Scores {
+		if s.Model == model && s.Extent == extent {
+			return s.Scored
+		}
+	}
+	return false
+}
+
+// logPosition places area a on [0, 1] between lo and hi on a log scale.
+func logPosition(a, lo, hi float64) float64 {
+	if !(hi > lo) || lo <= 0 {
+		return 0
+	}
+	return math.Log(a/lo) / math.Log(hi/lo)
+}
+
+// rocFigure draws the ROC curves on the area axis, one panel per model,
+// each curve coloured by the area of its extent.
+func rocFigure(r *Results) figure {
+	panels := rocPanels(r)
+	n := max(1, len(panels))
+	cols := min(n, 3)
+	rows := (n + cols - 1) / cols
+	e := 0.0
+	if len(r.Settings.E) > 0 {
+		e = r.Settings.E[0]
+	}
+	es := rocExtents(r)
+	amin, amax := 0.0, 0.0
+	if len(es) > 0 {
+		amin, amax = es[0].AreaKm2, es[len(es)-1].AreaKm2
+	}
+	f := figure{Name: "roc_curves", Title: "ROC curves on the area axis", W: twoColumns}
+	barW := 24 * vg.Millimeter
+	if cols == 1 {
+		f.W = oneColumn
+	}
+	panelW := (f.W - barW) / vg.Length(cols)
+	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
+		"predicted present (y), one panel per model (and per null, after the models), one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
+		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
+		"The selector under the figures names each curve.", fmtG(e))
+	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
+	band := color.Gray{Y: 225}
+	var items []legendItem
+	if e > 0 {
+		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: band}})
+	}
+	items = append(items, legendItem{"random prediction", lineThumb{diag}})
+	legend := legendRows(items, f.W-barW)
+	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
+	f.draw = func(dc draw.Canvas) error {
+		bottom, rest := splitBottom(dc, legendH)
+		drawLegendRows(bottom, legend)
+		barC, rest := splitRight(rest, barW)
+		plots := make([][]*plot.Plot, rows)
+		for j := range plots {
+			plots[j] = make([]*plot.Plot, cols)
+		}
+		for i, model := range panels {
+			p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
+			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
+			p.X.Label.Text = "share of extent predicted present"
+			if cols >= 3 {
+				p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
+			}
+			p.Y.Label.Text = "share of test records"
+			if e > 0 {
+				poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+				if err != nil {
+					return fmt.Errorf("report: figure roc: %w", err)
+				}
+				poly.Color = band
+				poly.LineStyle.Width = 0
+				p.Add(poly)
+			}
+			d, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
+			if err != nil {
+				return fmt.Errorf("report: figure roc: %w", err)
+			}
+			d.LineStyle = diag
+			p.Add(d)
+			// Largest first, so the small extents' dark curves lie on top.
+			for k := len(es) - 1; k >= 0; k-- {
+				ex := es[k]
+				c := findCurve(r, model, ex.ID)
+				if c == nil || !scoredFor(r, model, ex.ID) {
+					continue
+				}
+				m := min(len(c.X), len(c.Y))
+				if m < 2 {
+					continue
+				}
+				xys := make(plotter.XYs, m)
+				for q := range m {
+					xys[q] = plotter.XY{X: c.X[q], Y: c.Y[q]}
+				}
+				l, err := plotter.NewLine(xys)
+				if err != nil {
+					return fmt.Errorf("report: figure roc: %w", err)
+				}
+				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
+				p.Add(l)
+			}
+			plots[i/cols][i%cols] = p
+		}
+		drawTiles(plots, rest)
+		if amax > 0 {
+			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
+			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
+			drawAreaBar(barC, amin, amax)
+		}
+		return nil
+	}
+	return f
+}
+
+// drawAreaBar draws a vertical colour bar of the area ramp from lo to hi
+// km² (log scale) in c.
+func drawAreaBar(c draw.Canvas, lo, hi float64) {
+	div, unit := areaAxis(hi)
+	lo, hi = lo/div, hi/div
+	if !(hi > lo) {
+		lo, hi = lo/1.1, hi*1.1
+	}
+	const n = 128
+	img := image.NewRGBA(image.Rect(0, 0, 1, n))
+	for y := range n {
+		img.Set(0, y, areaRamp(1-(float64(y)+0.5)/n))
+	}
+	p := newPlot("", c.Max.X-c.Min.X)
+	p.Add(plotter.NewImage(img, 0, lo, 1, hi))
+	p.Y.Scale = plot.LogScale{}
+	p.Y.Tick.Marker = logTicks{}
+	p.Y.Min, p.Y.Max = lo, hi
+	p.X.Min, p.X.Max = 0, 1
+	p.HideX()
+	p.Y.Label.Text = unit
+	// The bar itself is 4 mm wide, at the right of c after its axis.
+	bc := c
+	da := p.DataCanvas(bc)
+	bc.Max.X -= (da.Max.X - da.Min.X) - 4*vg.Millimeter
+	p.Draw(bc)
+}

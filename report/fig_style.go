@@ -1,0 +1,313 @@
+package report
+
+import (
+	"image/color"
+	"math"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Print sizes. Figures are drawn at the size they are printed, so a font
+// size in points is the size on paper. The column widths are common
+// practice for two-column journals (about 85 mm and 175 mm).
+const (
+	oneColumn  = 85 * vg.Millimeter
+	twoColumns = 175 * vg.Millimeter
+	// maxHeight keeps a figure on one printed page (common practice:
+	// about 230 mm of usable height).
+	maxHeight = 230 * vg.Millimeter
+)
+
+// Font sizes in points at print size; nothing is smaller than minFontPt.
+const (
+	minFontPt   = 8
+	titleFontPt = 9
+)
+
+var sansFont = font.Font{Typeface: "Liberation", Variant: "Sans"}
+
+// textStyle returns the figures' text style at size pt.
+func textStyle(pt float64) draw.TextStyle {
+	return draw.TextStyle{Color: color.Black, Font: font.From(sansFont, vg.Points(pt)), Handler: plot.DefaultTextHandler}
+}
+
+// textWidth is the printed width of s at size pt.
+func textWidth(s string, pt float64) vg.Length {
+	f := font.DefaultCache.Lookup(sansFont, vg.Points(pt))
+	var w vg.Length
+	for _, line := range strings.Split(s, "\n") {
+		w = max(w, f.Width(line))
+	}
+	return w
+}
+
+// wrapText breaks s at spaces into lines no wider than w at size pt. A
+// single word wider than w stays whole on its own line.
+func wrapText(s string, pt float64, w vg.Length) string {
+	words := strings.Fields(s)
+	var lines []string
+	cur := ""
+	for _, word := range words {
+		try := word
+		if cur != "" {
+			try = cur + " " + word
+		}
+		if cur != "" && textWidth(try, pt) > w {
+			lines = append(lines, cur)
+			cur = word
+			continue
+		}
+		cur = try
+	}
+	if cur != "" {
+		lines = append(lines, cur)
+	}
+	return strings.Join(lines, "\n")
+}
+
+// Colours.
+//
+// lineColors is the "vibrant" qualitative scheme of Paul Tol (2021,
+// "Colour schemes", SRON technical note SRON/EPS/TN/09-002, issue 3.2),
+// published as distinct for the common colour-vision deficiencies and in
+// print. We leave out its grey (kept for no data) and order the rest so
+// that neighbours differ most: blue, orange, teal, magenta, cyan, red.
+// A panel never uses one of these twice; past six lines the figures split
+// the panel (map) or change dash and marker together with the colour.
+var lineColors = []color.RGBA{
+	{0, 119, 187, 255},
+	{238, 119, 51, 255},
+	{0, 153, 136, 255},
+	{238, 51, 119, 255},
+	{51, 187, 238, 255},
+	{204, 51, 17, 255},
+}
+
+// ink is the colour of text, axes and points.
+var ink = color.RGBA{26, 26, 26, 255}
+
+var colorWhite = color.RGBA{255, 255, 255, 255}
+
+// dashes are distinct line patterns so that lines stay apart in greyscale.
+var dashes = [][]vg.Length{
+	nil,
+	{vg.Points(5), vg.Points(2.5)},
+	{vg.Points(1.2), vg.Points(1.8)},
+	{vg.Points(7), vg.Points(2.5), vg.Points(1.2), vg.Points(2.5)},
+	{vg.Points(2.5), vg.Points(2.5)},
+	{vg.Points(9), vg.Points(3)},
+	{vg.Points(5), vg.Points(2), vg.Points(1.2), vg.Points(2), vg.Points(1.2), vg.Points(2)},
+}
+
+// glyphs are distinct marker shapes, one per model.
+var glyphs = []draw.GlyphDrawer{
+	draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.PyramidGlyph{},
+	draw.CrossGlyph{}, draw.PlusGlyph{}, draw.RingGlyph{}, draw.BoxGlyph{},
+}
+
+func modelColor(i int) color.Color      { return lineColors[i%len(lineColors)] }
+func modelDash(i int) []vg.Length       { return dashes[i%len(dashes)] }
+func modelGlyph(i int) draw.GlyphDrawer { return glyphs[i%len(glyphs)] }
+
+// areaRamp maps t in [0, 1] (small to large extent) to a colour whose
+// lightness rises steadily from dark indigo through teal to ochre (three
+// colours of Tol's schemes, op. cit.), so that the order reads in
+// greyscale and under colour-vision deficiencies, and the light end stays
+// visible on white.
+func areaRamp(t float64) color.RGBA {
+	stops := [][3]float64{{34, 34, 85}, {0, 153, 136}, {221, 170, 51}}
+	return rampColor(stops, t)
+}
+
+// suitabilityRamp maps a suitability in [0, 1] to a grey from near white
+// (low) to mid grey (high), light enough that coloured outlines and black
+// points stay visible everywhere on the map.
+func suitabilityRamp(t float64) color.RGBA {
+	return rampColor([][3]float64{{247, 247, 247}, {120, 120, 120}}, t)
+}
+
+// noDataColor is the map's colour for cells without data: a pale blue
+// that no grey of the suitability ramp matches.
+var noDataColor = color.RGBA{220, 234, 242, 255}
+
+func rampColor(stops [][3]float64, t float64) color.RGBA {
+	t = math.Max(0, math.Min(1, t))
+	seg := t * float64(len(stops)-1)
+	i := int(math.Floor(seg))
+	if i >= len(stops)-1 {
+		i = len(stops) - 2
+	}
+	u := seg - float64(i)
+	var c [3]uint8
+	for k := range c {
+		c[k] = uint8(math.Round(stops[i][k] + u*(stops[i+1][k]-stops[i][k])))
+	}
+	return color.RGBA{c[0], c[1], c[2], 255}
+}
+
+// newPlot returns a panel with our text styles. The title is wrapped to
+// width w so that it is never clipped.
+func newPlot(title string, w vg.Length) *plot.Plot {
+	p := plot.New()
+	p.BackgroundColor = nil // the figure's white page shows through
+	p.Title.Text = wrapText(title, titleFontPt, w)
+	// Only fonts and colours change: plot.New's alignments stay.
+	p.Title.TextStyle.Font = font.From(sansFont, titleFontPt)
+	p.Title.TextStyle.Color = ink
+	p.Title.Padding = vg.Points(3)
+	for _, ax := range []*plot.Axis{&p.X, &p.Y} {
+		ax.Label.TextStyle.Font = font.From(sansFont, minFontPt)
+		ax.Label.TextStyle.Color = ink
+		ax.Tick.Label.Font = font.From(sansFont, minFontPt)
+		ax.Tick.Label.Color = ink
+		ax.Padding = vg.Points(2)
+		ax.Tick.Length = vg.Points(3)
+		ax.LineStyle.Color = ink
+		ax.Tick.LineStyle.Color = ink
+		ax.Tick.Marker = niceTicks{}
+	}
+	p.Legend.TextStyle.Font = font.From(sansFont, minFontPt)
+	return p
+}
+
+// legendItem is one entry of a legend drawn outside the data.
+type legendItem struct {
+	label string
+	thumb plot.Thumbnailer
+}
+
+// legendRowHeight is the height of one legend line.
+const legendRowHeight = 11 * vg.Length(1)
+
+// legendRows lays items out left to right in rows no wider than w and
+// returns the rows.
+func legendRows(items []legendItem, w vg.Length) [][]legendItem {
+	var rows [][]legendItem
+	var cur []legendItem
+	x := vg.Length(0)
+	for _, it := range items {
+		iw := legendItemWidth(it)
+		if len(cur) > 0 && x+iw > w {
+			rows = append(rows, cur)
+			cur, x = nil, 0
+		}
+		cur = append(cur, it)
+		x += iw
+	}
+	if len(cur) > 0 {
+		rows = append(rows, cur)
+	}
+	return rows
+}
+
+func legendItemWidth(it legendItem) vg.Length {
+	return vg.Points(22+4+12) + textWidth(it.label, minFontPt)
+}
+
+// drawLegendRows draws rows of legend items from the top of c downwards.
+func drawLegendRows(c draw.Canvas, rows [][]legendItem) {
+	sty := textStyle(minFontPt)
+	sty.YAlign = draw.YCenter
+	y := c.Max.Y - legendRowHeight/2
+	for _, row := range rows {
+		x := c.Min.X + vg.Points(4)
+		for _, it := range row {
+			tc := draw.Canvas{Canvas: c.Canvas, Rectangle: vg.Rectangle{
+				Min: vg.Point{X: x, Y: y - vg.Points(3.5)}, Max: vg.Point{X: x + vg.Points(22), Y: y + vg.Points(3.5)}}}
+			it.thumb.Thumbnail(&tc)
+			c.FillText(sty, vg.Point{X: x + vg.Points(26), Y: y}, it.label)
+			x += legendItemWidth(it)
+		}
+		y -= legendRowHeight
+	}
+}
+
+// drawTiles aligns a rows x cols grid of panels on dc and draws them; nil
+// panels leave their tile empty.
+func drawTiles(plots [][]*plot.Plot, dc draw.Canvas) {
+	rows := len(plots)
+	if rows == 0 {
+		return
+	}
+	cols := len(plots[0])
+	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Points(12), PadY: vg.Points(10),
+		PadTop: vg.Points(2), PadBottom: vg.Points(2), PadLeft: vg.Points(2), PadRight: vg.Points(6)}
+	canv := plot.Align(plots, tiles, dc)
+	for j := range plots {
+		for i, p := range plots[j] {
+			if p != nil {
+				p.Draw(canv[j][i])
+			}
+		}
+	}
+}
+
+// splitTop returns the top strip of height h and the rest of c.
+func splitTop(c draw.Canvas, h vg.Length) (top, rest draw.Canvas) {
+	top, rest = c, c
+	top.Min.Y = c.Max.Y - h
+	rest.Max.Y = c.Max.Y - h
+	return top, rest
+}
+
+// splitBottom returns the bottom strip of height h and the rest of c.
+func splitBottom(c draw.Canvas, h vg.Length) (bottom, rest draw.Canvas) {
+	bottom, rest = c, c
+	bottom.Max.Y = c.Min.Y + h
+	rest.Min.Y = c.Min.Y + h
+	return bottom, rest
+}
+
+// splitRight returns the right strip of width w and the rest of c.
+func splitRight(c draw.Canvas, w vg.Length) (right, rest draw.Canvas) {
+	right, rest = c, c
+	right.Min.X = c.Max.X - w
+	rest.Max.X = c.Max.X - w
+	return right, rest
+}
+
+// lineStyle is a solid or dashed line of width wpt points.
+func lineStyle(c color.Color, wpt float64, d []vg.Length) draw.LineStyle {
+	return draw.LineStyle{Color: c, Width: vg.Points(wpt), Dashes: d}
+}
+
+// lineThumb is a legend thumbnail of one line style.
+type lineThumb struct{ ls draw.LineStyle }
+
+// Thumbnail implements plot.Thumbnailer.
+func (t lineThumb) Thumbnail(c *draw.Canvas) {
+	y := c.Center().Y
+	c.StrokeLine2(t.ls, c.Min.X, y, c.Max.X, y)
+}
+
+// glyphThumb is a legend thumbnail of one marker, optionally on a line.
+type glyphThumb struct {
+	gs   draw.GlyphStyle
+	line *draw.LineStyle
+}
+
+// Thumbnail implements plot.Thumbnailer.
+func (t glyphThumb) Thumbnail(c *draw.Canvas) {
+	if t.line != nil {
+		y := c.Center().Y
+		c.StrokeLine2(*t.line, c.Min.X, y, c.Max.X, y)
+	}
+	gs := t.gs
+	gs.Radius = min(gs.Radius, vg.Points(4.5)) // stay within the legend row
+	c.DrawGlyph(gs, c.Center())
+}
+
+// boxThumb is a legend thumbnail of a filled box.
+type boxThumb struct{ fill color.Color }
+
+// Thumbnail implements plot.Thumbnailer.
+func (t boxThumb) Thumbnail(c *draw.Canvas) {
+	r := vg.Rectangle{Min: vg.Point{X: c.Min.X + vg.Points(5), Y: c.Min.Y}, Max: vg.Point{X: c.Max.X - vg.Points(5), Y: c.Max.Y}}
+	c.SetColor(t.fill)
+	c.Fill(r.Path())
+	c.StrokeLines(lineStyle(ink, 0.5, nil), []vg.Point{r.Min, {X: r.Max.X, Y: r.Min.Y}, r.Max, {X: r.Min.X, Y: r.Max.Y}, r.Min})
+}

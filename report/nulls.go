@@ -1,0 +1,183 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"sort"
+	"strings"
+
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// modelLabel is how the report names a model: nulls carry what they are,
+// so that no reader takes one for a model under evaluation.
+func modelLabel(r *Results, name string) string {
+	for _, m := range r.Models {
+		if m.Name != name || !m.IsNull() {
+			continue
+		}
+		if m.NullKind == NullDistance {
+			return name + " (distance-only null)"
+		}
+		return name + " (null)"
+	}
+	return name
+}
+
+// nulls returns the nulls of r in Results.Models order.
+func nulls(r *Results) []Model {
+	var out []Model
+	for _, m := range r.Models {
+		if m.IsNull() {
+			out = append(out, m)
+		}
+	}
+	return out
+}
+
+// nullLineStyle draws the k-th null in the metric figures: grey, dotted,
+// thinner than the models' lines, and with hollow markers, so it reads as
+// a reference and not as one more model.
+func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
+	grey := []color.Color{color.Gray{Y: 90}, color.Gray{Y: 150}}[k%2]
+	return draw.LineStyle{Color: grey, Width: vg.Points(1.2), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2)}},
+		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: draw.RingGlyph{}}
+}
+
+// nullSeries returns, for metric m, the null's value against the extent
+// area on every usable extent it is scored on, sorted by area.
+func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
+	ok := map[string]float64{}
+	for _, e := range r.Extents {
+		if e.Status == "ok" && e.AreaKm2 > 0 {
+			ok[e.ID] = e.AreaKm2
+		}
+	}
+	var xys plotter.XYs
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		area, usable := ok[sc.Extent]
+		if sc.Model != null || !sc.Scored || !usable {
+			continue
+		}
+		if v, has, _, _, _, _ := metricValue(m, sc); has {
+			xys = append(xys, plotter.XY{X: area, Y: v})
+		}
+	}
+	sort.SliceStable(xys, func(a, b int) bool { return xys[a].X < xys[b].X })
+	return xys
+}
+
+// sortingBiasRows gives one table row per extent with a defined spatial
+// sorting bias, in family order.
+func sortingBiasRows(r *Results) [][]cell {
+	var rows [][]cell
+	for _, e := range r.Extents {
+		sb := e.SortingBias
+		if sb == nil || !sb.Defined {
+			continue
+		}
+		rows = append(rows, []cell{tc(e.ID), areaCell(e.AreaKm2), ic(sb.TestPoints), nc(sb.TestMeanKm, 1), nc(sb.BackgroundMeanKm, 1),
+			nc(sb.RatioMean, 3), nc(sb.TestMedianKm, 1), nc(sb.BackgroundMedianKm, 1), nc(sb.RatioMedian, 3)})
+	}
+	return rows
+}
+
+// sortingBiasNote explains the sorting-bias table.
+const sortingBiasNote = "Spatial sorting bias (Hijmans 2012, Ecology 93:679-688): the mean (and median) geodesic distance from the test points " +
+	"inside each extent to the nearest training point, over the same distance averaged over the extent's cells by area. " +
+	"Values well below 1 mean the test points lie much nearer the training points than the background does, so that distance alone " +
+	"separates them: the distance-only null's AUC on the same extent shows how far that carries. A description, not a test. " +
+	"The cells' median is read from bins 0.1% wide."
+
+// nullSentences describes the nulls and the sorting bias for methods.md:
+// each null's AUC on the base extent beside the models', its range across
+// extents, the paired difference of each model and null with its interval
+// (Sensitivity.AboveNull) and the range of the sorting-bias ratio.
+func nullSentences(r *Results) string {
+	var b strings.Builder
+	auc := func(model, ext string) (float64, bool) {
+		for _, sc := range r.Scores {
+			if sc.Model == model && sc.Extent == ext && sc.Scored {
+				return sc.AUC, true
+			}
+		}
+		return 0, false
+	}
+	okExt := map[string]bool{}
+	for _, e := range r.Extents {
+		okExt[e.ID] = e.Status == "ok"
+	}
+	for _, n := range nulls(r) {
+		lo, hi, k := math.Inf(1), math.Inf(-1), 0
+		for _, sc := range r.Scores {
+			if sc.Model == n.Name && sc.Scored && okExt[sc.Extent] {
+				lo, hi, k = math.Min(lo, sc.AUC), math.Max(hi, sc.AUC), k+1
+			}
+		}
+		if k == 0 {
+			continue
+		}
+		what := "The null " + n.Name
+		if n.NullKind == NullDistance {
+			what = "A distance-only null (minus the geodesic distance from each cell to the nearest training record; Hijmans 2012)"
+		}
+		fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
+		if v, ok := auc(n.Name, "base"); ok {
+			fmt.Fprintf(&b, " and was %s on the base region", f3(v))
+			var ms []string
+			for _, m := range r.Models {
+				if mv, ok := auc(m.Name, "base"); ok && !m.IsNull() {
+					ms = append(ms, fmt.Sprintf("%s %s", m.Name, f3(mv)))
+				}
+			}
+			if len(ms) > 0 {
+				fmt.Fprintf(&b, " (models: %s)", strings.Join(ms, ", "))
+			}
+		}
+		b.WriteString(".")
+	}
+	if r.Sensitivity != nil {
+		for _, an := range r.Sensitivity.AboveNull {
+			b.WriteString(" " + an.Sentence)
+		}
+	}
+	lo, hi, k := math.Inf(1), math.Inf(-1), 0
+	for _, e := range r.Extents {
+		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == "ok" {
+			lo, hi, k = math.Min(lo, sb.RatioMean), math.Max(hi, sb.RatioMean), k+1
+		}
+	}
+	if k > 0 {
+		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) ranged %s–%s across %d extents.", f3(lo), f3(hi), k)
+	}
+	return b.String()
+}
+
+// rocPanels lists the ROC figure's panels: the models, then the nulls.
+func rocPanels(r *Results) []string {
+	out := append([]string(nil), r.Sensitivity.ModelNames...)
+	for _, n := range nulls(r) {
+		out = append(out, n.Name)
+	}
+	return out
+}
+
+// rocPanelTitle names a ROC panel: "model NAME", or what the null is
+// first and its name after, so that a narrow panel's wrapped title keeps
+// "distance-only null" on one line.
+func rocPanelTitle(r *Results, name string) string {
+	for _, m := range r.Models {
+		if m.Name != name || !m.IsNull() {
+			continue
+		}
+		if m.NullKind == NullDistance {
+			return "distance-only null (" + name + ")"
+		}
+		return "null (" + name + ")"
+	}
+	return "model " + name
+}

@@ -1,0 +1,82 @@
+package report
+
+import (
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// withNull returns the sample run with a copy of its first model's scores
+// added as the distance-only null, and a sorting bias on every usable
+// extent.
+func withNull(t *testing.T) *Results {
+	t.Helper()
+	r := loadSample(t)
+	first := r.Models[0].Name
+	r.Models = append(r.Models, Model{Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance})
+	var add []Score
+	for _, sc := range r.Scores {
+		if sc.Model == first {
+			sc.Model = DistanceNullName
+			sc.AUC = 0.999 // above every model, so a ranking that saw it would change
+			add = append(add, sc)
+		}
+	}
+	r.Scores = append(r.Scores, add...)
+	for i := range r.Extents {
+		if r.Extents[i].Status == "ok" {
+			r.Extents[i].SortingBias = &SortingBias{Defined: true, TestPoints: 3, TestMeanKm: 10, BackgroundMeanKm: 40, RatioMean: 0.25, RatioMedian: 0.3}
+		}
+	}
+	return r
+}
+
+// TestNullsLeftOutOfAnalysis checks that a null changes nothing in the
+// sensitivity analysis (spreads, decomposition, verdicts, headline are
+// identical to the run without it) while it is labelled in the report
+// page, drawn in the metrics figure (legend) and the ROC figure (own
+// panel), and described in methods.md
+// with its AUC range and the sorting bias.
+func TestNullsLeftOutOfAnalysis(t *testing.T) {
+	plain := analyzedSample(t)
+	r := withNull(t)
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(plain.Sensitivity, r.Sensitivity) {
+		t.Error("adding a null changed the sensitivity analysis")
+	}
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{DistanceNullName + " (distance-only null)", "Spatial sorting bias", "tbl-sorting-bias"} {
+		if !strings.Contains(string(page), want) {
+			t.Errorf("report.html lacks %q", want)
+		}
+	}
+	for _, name := range []string{"metrics_vs_area", "roc_curves"} {
+		fig, err := os.ReadFile(filepath.Join(dir, "figures", name+".svg"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(fig), "distance-only null") {
+			t.Errorf("figure %s does not name the distance-only null", name)
+		}
+	}
+	methods, err := os.ReadFile(filepath.Join(dir, "methods.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"A distance-only null", "0.999", "spatial sorting bias", "0.250–0.250", "Hijmans, R.J. (2012)"} {
+		if !strings.Contains(string(methods), want) {
+			t.Errorf("methods.md lacks %q", want)
+		}
+	}
+}

@@ -1,0 +1,263 @@
+package report
+
+import (
+	"encoding/base64"
+	"fmt"
+	"math"
+)
+
+// MaxPreviewSide bounds each side of the preview a results file may hold;
+// areasweep writes at most 240.
+const MaxPreviewSide = 4096
+
+// Validate checks that a results file read from disk holds values a run
+// can produce, so that `areasweep report DIR` never renders impossible
+// numbers (an AUC of -5) or fails half-way on a hand-edited file. Every
+// problem names the field (`scores[3].auc`), the model and extent, the
+// value and the allowed range. It checks:
+//
+//   - the grid size, models (unique names, finite ranges, floor share in
+//     [0,1]) and extents (unique ids, counts and areas >= 0, share in [0,1],
+//     duplicate_of naming an earlier extent);
+//   - scores, rings and curves refer to known models and extents;
+//   - AUCs, omission rates, area fractions and p-values lie in [0,1], the
+//     Boyce index in [-1,1], partial ROC ratios and SDs are >= 0 and E in
+//     (0,1), successes lie in [0, n];
+//   - points have a known role and status and finite coordinates;
+//   - the preview's size and encoded lengths match.
+func Validate(r *Results) error {
+	if r == nil {
+		return fmt.Errorf("report: no results")
+	}
+	v := &validator{}
+	v.settings(r.Settings)
+	if r.Grid.Width < 0 || r.Grid.Height < 0 {
+		v.fail("grid", "size %dx%d is negative", r.Grid.Width, r.Grid.Height)
+	}
+	models := map[string]bool{}
+	for i, m := range r.Models {
+		at := fmt.Sprintf("models[%d] (%s)", i, m.Name)
+		if m.Name == "" || models[m.Name] {
+			v.fail(at, "name is empty or repeated")
+		}
+		models[m.Name] = true
+		v.finite(at+".value_min", m.ValueMin)
+		v.finite(at+".value_max", m.ValueMax)
+		v.unit(at+".floor_share", m.FloorShare)
+	}
+	extents := map[string]bool{}
+	for i, e := range r.Extents {
+		at := fmt.Sprintf("extents[%d] (%s)", i, e.ID)
+		if e.ID == "" || extents[e.ID] {
+			v.fail(at, "id is empty or repeated")
+		}
+		if e.DuplicateOf != "" && !extents[e.DuplicateOf] {
+			v.fail(at+".duplicate_of", "%q is not an earlier extent", e.DuplicateOf)
+		}
+		extents[e.ID] = true
+		v.nonNegInt(at+".cells", e.Cells)
+		v.nonNeg(at+".area_km2", e.AreaKm2)
+		v.unit(at+".share_of_raster", e.ShareOfRaster)
+		v.nonNegInt(at+".train_points", int64(e.TrainPoints))
+		v.nonNegInt(at+".test_points", int64(e.TestPoints))
+	}
+	ref := func(at, model, ext string) {
+		if !models[model] {
+			v.fail(at, "model %q is not in models", model)
+		}
+		if !extents[ext] {
+			v.fail(at, "extent %q is not in extents", ext)
+		}
+	}
+	for i, s := range r.Scores {
+		at := fmt.Sprintf("scores[%d] (model %s, extent %s)", i, s.Model, s.Extent)
+		ref(at, s.Model, s.Extent)
+		v.score(at, s)
+	}
+	for i, g := range r.Rings {
+		at := fmt.Sprintf("rings[%d] (model %s, %s to %s)", i, g.Model, g.Inner, g.Outer)
+		ref(at, g.Model, g.Inner)
+		ref(at, g.Model, g.Outer)
+		v.unit(at+".auc_inner", g.AUCInner)
+		v.unit(at+".auc_ring", g.AUCRing)
+		v.unit(at+".auc_outer", g.AUCOuter)
+		v.nonNeg(at+".inner_area_km2", g.InnerAreaKm2)
+		v.nonNeg(at+".ring_area_km2", g.RingAreaKm2)
+		v.nonNegInt(at+".ring_cells", g.RingCells)
+		v.finite(at+".share_of_change", g.ShareOfChange)
+	}
+	for i, c := range r.Curves {
+		at := fmt.Sprintf("curves[%d] (model %s, extent %s)", i, c.Model, c.Extent)
+		ref(at, c.Model, c.Extent)
+		if len(c.X) != len(c.Y) {
+			v.fail(at, "x has %d values and y %d", len(c.X), len(c.Y))
+		}
+		for k := range c.X {
+			v.unit(fmt.Sprintf("%s.x[%d]", at, k), c.X[k])
+		}
+		for k := range c.Y {
+			v.unit(fmt.Sprintf("%s.y[%d]", at, k), c.Y[k])
+		}
+	}
+	for i, o := range r.Omissions {
+		at := fmt.Sprintf("omissions[%d] (model %s)", i, o.Model)
+		if !models[o.Model] {
+			v.fail(at, "model %q is not in models", o.Model)
+		}
+		v.finite(at+".value", o.Value)
+	}
+	for i, p := range r.Points {
+		at := fmt.Sprintf("points[%d] (line %d)", i, p.ID)
+		if p.Role != "train" && p.Role != "test" {
+			v.fail(at+".role", "%q is not train or test", p.Role)
+		}
+		switch p.Status {
+		case "scored", "outside_raster", "nodata", "thinned":
+		default:
+			v.fail(at+".status", "%q is not scored, outside_raster, nodata or thinned", p.Status)
+		}
+		v.finite(at+".lon", p.Lon)
+		v.finite(at+".lat", p.Lat)
+		v.nonNeg(at+".nearest_train_km", p.NearestTrainKm)
+	}
+	if r.Preview != nil {
+		v.preview(r.Preview, len(r.Extents))
+	}
+	return v.err
+}
+
+// validator keeps the first problem found.
+type validator struct{ err error }
+
+func (v *validator) fail(at, format string, args ...any) {
+	if v.err == nil {
+		v.err = fmt.Errorf("report: results.json %s: %s; the file was changed or damaged: rerun areasweep run to get a new one", at, fmt.Sprintf(format, args...))
+	}
+}
+
+func (v *validator) finite(at string, x float64) {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		v.fail(at, "%v is not a finite number", x)
+	}
+}
+
+func (v *validator) between(at string, x, lo, hi float64) {
+	if !(x >= lo && x <= hi) {
+		v.fail(at, "%v is outside [%g, %g]", x, lo, hi)
+	}
+}
+
+func (v *validator) unit(at string, x float64) { v.between(at, x, 0, 1) }
+
+func (v *validator) nonNeg(at string, x float64) {
+	if !(x >= 0) || math.IsInf(x, 0) {
+		v.fail(at, "%v is not a finite number >= 0", x)
+	}
+}
+
+func (v *validator) nonNegInt(at string, x int64) {
+	if x < 0 {
+		v.fail(at, "%d is negative", x)
+	}
+}
+
+func (v *validator) settings(s Settings) {
+	for i, e := range s.E {
+		if !(e > 0 && e < 1) {
+			v.fail(fmt.Sprintf("settings.e[%d]", i), "%v is outside (0, 1)", e)
+		}
+	}
+	for i, t := range s.FixedThresholds {
+		v.finite(fmt.Sprintf("settings.fixed_thresholds[%d]", i), t)
+	}
+	if s.Iterations < 0 {
+		v.fail("settings.iterations", "%d is negative", s.Iterations)
+	}
+	v.unit("settings.resample_fraction", s.ResampleFraction)
+	v.nonNeg("settings.boyce_window", s.BoyceWindow)
+	if s.BoyceSteps < 0 {
+		v.fail("settings.boyce_steps", "%d is negative", s.BoyceSteps)
+	}
+}
+
+func (v *validator) score(at string, s Score) {
+	v.nonNegInt(at+".cells", s.Cells)
+	v.nonNeg(at+".area_km2", s.AreaKm2)
+	for _, c := range []struct {
+		name string
+		n    int
+	}{{"test_points", s.TestPoints}, {"train_points", s.TrainPoints}, {"test_points_outside", s.TestOutside}, {"train_points_outside", s.TrainOutside}} {
+		v.nonNegInt(at+"."+c.name, int64(c.n))
+	}
+	if !s.Scored {
+		return
+	}
+	v.unit(at+".auc", s.AUC)
+	v.unit(at+".auc_unweighted", s.AUCUnweighted)
+	v.unit(at+".auc_train", s.AUCTrain)
+	v.nonNeg(at+".auc_boot_sd", s.AUCBootSD)
+	for k, p := range s.PartialROC {
+		pa := fmt.Sprintf("%s.partial_roc[%d]", at, k)
+		if !(p.E > 0 && p.E < 1) {
+			v.fail(pa+".e", "%v is outside (0, 1)", p.E)
+		}
+		v.nonNeg(pa+".ratio", p.Ratio)
+		v.nonNeg(pa+".ratio_mean", p.RatioMean)
+		v.nonNeg(pa+".ratio_sd", p.RatioSD)
+		v.nonNeg(pa+".ci_low", p.CILow)
+		v.nonNeg(pa+".ci_high", p.CIHigh)
+		v.unit(pa+".p_value", p.PValue)
+		if p.Iterations < 0 || p.NotFormed < 0 || p.NotFormed > p.Iterations {
+			v.fail(pa, "iterations %d and iterations_not_formed %d do not fit", p.Iterations, p.NotFormed)
+		}
+	}
+	for k, t := range s.Thresholds {
+		ta := fmt.Sprintf("%s.thresholds[%d] (%s)", at, k, t.Name)
+		v.finite(ta+".value", t.Value)
+		v.unit(ta+".omission", t.Omission)
+		v.unit(ta+".area_fraction", t.AreaFraction)
+		v.unit(ta+".p_binomial", t.PBinomial)
+		if t.N < 0 || t.Successes < 0 || t.Successes > t.N {
+			v.fail(ta, "successes %d of n %d do not fit", t.Successes, t.N)
+		}
+	}
+	if b := s.Boyce; b != nil {
+		v.between(at+".boyce.index", b.Index, -1, 1)
+		if len(b.Mid) != len(b.Ratio) {
+			v.fail(at+".boyce", "window_mid has %d values and pe_ratio %d", len(b.Mid), len(b.Ratio))
+		}
+		for k := range b.Mid {
+			v.finite(fmt.Sprintf("%s.boyce.window_mid[%d]", at, k), b.Mid[k])
+		}
+		for k := range b.Ratio {
+			v.nonNeg(fmt.Sprintf("%s.boyce.pe_ratio[%d]", at, k), b.Ratio[k])
+		}
+		if b.Windows < 0 || b.Used < 0 || b.Used > b.Windows {
+			v.fail(at+".boyce", "windows %d and windows_used %d do not fit", b.Windows, b.Used)
+		}
+	}
+}
+
+func (v *validator) preview(pv *Preview, nExt int) {
+	if pv.Width <= 0 || pv.Height <= 0 || pv.Width > MaxPreviewSide || pv.Height > MaxPreviewSide {
+		v.fail("preview", "size %dx%d is outside 1..%d per side", pv.Width, pv.Height, MaxPreviewSide)
+		return
+	}
+	n := pv.Width * pv.Height
+	if vals, err := base64.StdEncoding.DecodeString(pv.Values); err != nil || len(vals) != n {
+		v.fail("preview.values", "does not hold %d base64-coded bytes", n)
+	}
+	if len(pv.Masks) != nExt {
+		v.fail("preview.masks", "has %d masks for %d extents", len(pv.Masks), nExt)
+	}
+	for k, m := range pv.Masks {
+		if bits, err := base64.StdEncoding.DecodeString(m); err != nil || len(bits)*8 < n {
+			v.fail(fmt.Sprintf("preview.masks[%d]", k), "does not hold %d base64-coded bits", n)
+		}
+	}
+	for i, b := range pv.Bounds {
+		v.finite(fmt.Sprintf("preview.bounds[%d]", i), b)
+	}
+	v.finite("preview.value_min", pv.ValueMin)
+	v.finite("preview.value_max", pv.ValueMax)
+}

@@ -1,0 +1,134 @@
+package report
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"runtime/debug"
+	"strings"
+	"testing"
+	"time"
+)
+
+// TestValidateSample: the synthetic run made with numpy/SciPy
+// (testdata/report/sample_results.json, see gen_sample.py) holds only
+// values a run can produce, so it passes.
+func TestValidateSample(t *testing.T) {
+	r := loadSample(t)
+	if err := Validate(r); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestValidateRefuses: each edit makes one value impossible; Validate must
+// name the field and the value.
+func TestValidateRefuses(t *testing.T) {
+	firstScored := func(r *Results) *Score {
+		for i := range r.Scores {
+			if r.Scores[i].Scored {
+				return &r.Scores[i]
+			}
+		}
+		t.Fatal("sample has no scored score")
+		return nil
+	}
+	cases := []struct {
+		name string
+		edit func(r *Results)
+		want string
+	}{
+		{"AUC -5", func(r *Results) { firstScored(r).AUC = -5 }, ".auc: -5 is outside [0, 1]"},
+		{"AUC above 1", func(r *Results) { firstScored(r).AUCUnweighted = 1.5 }, ".auc_unweighted: 1.5"},
+		{"negative area", func(r *Results) { r.Extents[0].AreaKm2 = -1 }, "extents[0]"},
+		{"repeated extent id", func(r *Results) { r.Extents[1].ID = r.Extents[0].ID }, "id is empty or repeated"},
+		{"unknown model", func(r *Results) { r.Scores[0].Model = "ghost" }, `model "ghost" is not in models`},
+		{"omission above 1", func(r *Results) { firstScored(r).Thresholds[0].Omission = 2 }, ".omission: 2"},
+		{"successes above n", func(r *Results) { th := &firstScored(r).Thresholds[0]; th.Successes = th.N + 1 }, "do not fit"},
+		{"E outside (0,1)", func(r *Results) { r.Settings.E = []float64{1.5} }, "settings.e[0]"},
+		{"point role", func(r *Results) { r.Points[0].Role = "both" }, `"both" is not train or test`},
+		{"curve lengths", func(r *Results) { r.Curves[0].Y = r.Curves[0].Y[:1] }, "x has"},
+		{"boyce index", func(r *Results) {
+			for i := range r.Scores {
+				if r.Scores[i].Boyce != nil {
+					r.Scores[i].Boyce.Index = 3
+					return
+				}
+			}
+		}, "boyce.index: 3"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			c.edit(r)
+			err := Validate(r)
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("Validate = %v, want it to contain %q", err, c.want)
+			}
+		})
+	}
+}
+
+// maxFuzzResults bounds the inputs FuzzResults looks at.
+const maxFuzzResults = 64 << 10
+
+// FuzzResults feeds arbitrary results.json files through what `areasweep
+// report` does before writing: decode, Validate, and for files that pass,
+// Analyze and the figure and methods text builders. Nothing may panic.
+func FuzzResults(f *testing.F) {
+	data, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		f.Fatal(err)
+	}
+	// A small seed cut from the sample (one model, three extents, no
+	// points or curves), so that the mutator spends its time on structure
+	// rather than on 350 kB of numbers.
+	var small Results
+	if err := json.Unmarshal(data, &small); err != nil {
+		f.Fatal(err)
+	}
+	small.Models = small.Models[:1]
+	small.Extents = small.Extents[:3]
+	var scores []Score
+	for _, sc := range small.Scores {
+		if sc.Model == small.Models[0].Name && (sc.Extent == small.Extents[0].ID || sc.Extent == small.Extents[1].ID || sc.Extent == small.Extents[2].ID) {
+			scores = append(scores, sc)
+		}
+	}
+	small.Scores, small.Points, small.Curves, small.Rings, small.Omissions, small.Preview = scores, nil, nil, nil, nil, nil
+	// Boyce windows make the seed long without adding structure.
+	for i := range small.Scores {
+		if b := small.Scores[i].Boyce; b != nil {
+			n := min(2, len(b.Mid), len(b.Ratio))
+			b.Mid, b.Ratio = b.Mid[:n], b.Ratio[:n]
+		}
+	}
+	if b, err := json.Marshal(&small); err == nil {
+		f.Add(b)
+	}
+	f.Add([]byte(`{"schema_version":1}`))
+	f.Add([]byte(`{"schema_version":1,"models":[{"name":"m"}],"extents":[{"id":"a"}],"scores":[{"model":"m","extent":"a","scored":true,"auc":0.5}]}`))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		if len(b) > maxFuzzResults {
+			return // large files only slow the mutator; Validate's checks do not depend on size
+		}
+		// A hang is a failure too: after 20 s the worker dies with every
+		// goroutine's stack.
+		stop := time.AfterFunc(20*time.Second, func() {
+			debug.SetTraceback("all")
+			panic("FuzzResults: one input took over 20 s")
+		})
+		defer stop.Stop()
+		var r Results
+		if json.Unmarshal(b, &r) != nil || r.SchemaVersion != SchemaVersion {
+			return
+		}
+		if Validate(&r) != nil {
+			return
+		}
+		if Analyze(&r) != nil {
+			return
+		}
+		_ = figures(&r)
+		_ = methodsText(&r)
+	})
+}

@@ -1,0 +1,267 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strings"
+)
+
+// pairedFor returns the paired record of metric between (model, ext) and
+// (other, otherExt), or nil.
+func (a *analysis) pairedFor(metric, kind, model, ext, other, otherExt string) *Paired {
+	for i := range a.r.Paired {
+		p := &a.r.Paired[i]
+		if p.Metric == metric && p.Kind == kind && p.Model == model && p.Extent == ext && p.OtherModel == other && p.OtherExtent == otherExt {
+			return p
+		}
+	}
+	return nil
+}
+
+// testPointCounts lists the test points of each extent in ids and whether
+// they differ.
+func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
+	out := []int{}
+	vary := false
+	for _, id := range ids {
+		n := 0
+		if i, ok := a.extIndex[id]; ok {
+			n = a.r.Extents[i].TestPoints
+		}
+		if len(out) > 0 && n != out[0] {
+			vary = true
+		}
+		out = append(out, n)
+	}
+	return out, vary
+}
+
+// position places the interval lo..hi against -tol..+tol.
+func position(lo, hi, tol float64) string {
+	switch {
+	case lo >= -tol && hi <= tol:
+		return "inside"
+	case lo > tol || hi < -tol:
+		return "outside"
+	}
+	return "overlapping"
+}
+
+// difference fills one ExtentDifference from a paired record (or exactly,
+// for the predicted area, which no test point moves).
+func (a *analysis) difference(m MetricInfo, kind, model, ext, other, otherExt string) ExtentDifference {
+	d := ExtentDifference{Extent: ext}
+	sc := a.score(model, ext)
+	if sc != nil {
+		d.TestPoints = sc.TestPoints
+		d.Value, _, _, _, _, _ = metricValue(m, sc)
+	}
+	if m.Kind == "area_fraction" {
+		osc := a.score(other, otherExt)
+		if sc == nil || osc == nil {
+			return d
+		}
+		v, ok1, _, _, _, _ := metricValue(m, sc)
+		w, ok2, _, _, _, _ := metricValue(m, osc)
+		if ok1 && ok2 {
+			d.Defined, d.Method = true, "exact"
+			d.Diff, d.Low, d.High = v-w, v-w, v-w
+			d.Position = position(d.Low, d.High, m.Tolerance)
+		}
+		return d
+	}
+	p := a.pairedFor(m.Key, kind, model, ext, other, otherExt)
+	if p == nil {
+		return d
+	}
+	d.CommonPoints, d.Method = p.CommonPoints, p.Method
+	if !p.Defined {
+		return d
+	}
+	d.Defined = true
+	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
+	d.Position = position(d.Low, d.High, m.Tolerance)
+	return d
+}
+
+// modelVerdict judges metric m for model by its paired differences from
+// the base extent (see ModelVerdict).
+func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
+	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: "undetermined",
+		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
+	bs := a.score(model, a.base)
+	if bs == nil {
+		mv.Sentence = fmt.Sprintf("%s of %s: not scored on the base extent %s, so no difference from it can be formed.", upperFirst(m.Label), model, a.base)
+		return mv
+	}
+	var baseOK bool
+	mv.BaseValue, baseOK, _, _, _, _ = metricValue(m, bs)
+	mv.BaseDefined = baseOK
+	outside := 0
+	for _, e := range a.extents {
+		if e.ID == a.base || a.score(model, e.ID) == nil {
+			continue
+		}
+		d := a.difference(m, "extent", model, e.ID, model, a.base)
+		mv.Diffs = append(mv.Diffs, d)
+		if !d.Defined {
+			mv.Undefined = append(mv.Undefined, e.ID)
+			continue
+		}
+		if d.Position == "outside" {
+			outside++
+		}
+		if mv.Largest < 0 || math.Abs(d.Diff) > math.Abs(mv.Diffs[mv.Largest].Diff) {
+			mv.Largest = len(mv.Diffs) - 1
+		}
+	}
+	name := fmt.Sprintf("%s of %s", upperFirst(m.Label), model)
+	tol := "±" + fmtG(m.Tolerance)
+	switch {
+	case len(mv.Diffs) == 0:
+		mv.Sentence = fmt.Sprintf("%s: scored on the base extent only, so there is nothing to compare.", name)
+		return mv
+	case mv.Largest < 0:
+		why := "no paired difference from " + a.base + " could be formed"
+		if !baseOK {
+			why = fmt.Sprintf("it is undefined on %s, the base extent%s", a.base, undefinedWhy(m, bs))
+		}
+		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
+		return mv
+	}
+	big := mv.Diffs[mv.Largest]
+	largest := fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(big.Diff), big.Extent, signed3(big.Low), signed3(big.High))
+	if big.Method == "exact" {
+		largest = fmt.Sprintf("%s on %s (exact: no test point moves it)", signed3(big.Diff), big.Extent)
+	}
+	notOn := ""
+	if len(mv.Undefined) > 0 {
+		notOn = fmt.Sprintf(" It is undefined on %s.", joinList(mv.Undefined))
+	}
+	switch {
+	case outside > 0:
+		mv.Verdict = "extent-sensitive"
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extents the difference from %s lies wholly beyond our tolerance of %s; the largest is %s.%s",
+			name, outside, len(mv.Diffs), a.base, tol, largest, notOn)
+	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
+		mv.Verdict = "robust"
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s lies within %s with its 95%% interval; the largest is %s.",
+			name, a.base, tol, largest)
+	default:
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s",
+			name, tol, a.base, largest, notOn)
+	}
+	return mv
+}
+
+func allInside(ds []ExtentDifference) bool {
+	for _, d := range ds {
+		if !d.Defined || d.Position != "inside" {
+			return false
+		}
+	}
+	return true
+}
+
+// undefinedWhy names why a partial ROC ratio is undefined on s.
+func undefinedWhy(m MetricInfo, s *Score) string {
+	if m.Kind != "partial_roc" {
+		return ""
+	}
+	for _, p := range s.PartialROC {
+		if math.Abs(p.E-m.E) <= 1e-12 && !p.Defined && p.Reason != "" {
+			out := " (" + p.Reason
+			switch {
+			case p.DiscreteDefined:
+				out += fmt.Sprintf("; read at thresholds only, x_E = %s and the ratio is %s", f3(p.DiscreteXE), f3(p.DiscreteRatio))
+			case p.TiedAtCrossing > 0:
+				out += "; read at thresholds only, the threshold that keeps the tied test points keeps the whole area, so no ratio can be formed"
+			}
+			return out + ")"
+		}
+	}
+	return ""
+}
+
+// verdictFor sums up the model verdicts of metric m.
+func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
+	v := Verdict{Metric: m.Key, Label: m.Label, Tolerance: m.Tolerance, Verdict: "undetermined",
+		Sensitive: []string{}, Robust: []string{}, Undetermined: []string{}}
+	for _, mv := range mvs {
+		switch mv.Verdict {
+		case "extent-sensitive":
+			v.Sensitive = append(v.Sensitive, mv.Model)
+		case "robust":
+			v.Robust = append(v.Robust, mv.Model)
+		default:
+			v.Undetermined = append(v.Undetermined, mv.Model)
+		}
+	}
+	switch {
+	case len(v.Sensitive) > 0:
+		v.Verdict = "extent-sensitive"
+	case len(v.Robust) > 0 && len(v.Undetermined) == 0:
+		v.Verdict = "robust"
+	}
+	var parts []string
+	if len(v.Sensitive) > 0 {
+		parts = append(parts, "extent-sensitive for "+joinList(v.Sensitive))
+	}
+	if len(v.Robust) > 0 {
+		parts = append(parts, "robust for "+joinList(v.Robust))
+	}
+	if len(v.Undetermined) > 0 {
+		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
+	}
+	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from the base extent): %s.", upperFirst(m.Label), fmtG(m.Tolerance), strings.Join(parts, "; "))
+	if len(mvs) == 1 {
+		v.Sentence = mvs[0].Sentence
+	}
+	return v
+}
+
+// rankings compares every pair of models on metric m extent by extent.
+// The predicted area is left out: it has no sampling error, so any
+// difference would count as "beyond noise".
+func (a *analysis) rankings(m MetricInfo) []ModelRanking {
+	var out []ModelRanking
+	if m.Kind == "area_fraction" {
+		return out
+	}
+	for i, ma := range a.models {
+		for _, mb := range a.models[i+1:] {
+			r := ModelRanking{Metric: m.Key, Model: ma, Other: mb, Diffs: []ExtentDifference{}}
+			for _, e := range a.extents {
+				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
+					continue
+				}
+				d := a.difference(m, "model", ma, e.ID, mb, e.ID)
+				r.Diffs = append(r.Diffs, d)
+				if !d.Defined {
+					continue
+				}
+				r.Extents++
+				up, down := d.Low > 0, d.High < 0
+				if !m.HigherIsBetter {
+					up, down = down, up
+				}
+				switch {
+				case up:
+					r.Better++
+				case down:
+					r.Worse++
+				default:
+					r.WithinNoise++
+				}
+			}
+			if r.Extents == 0 {
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+			} else {
+				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extents, worse on %d, within noise on %d (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, r.Better, r.Extents, r.Worse, r.WithinNoise)
+			}
+			out = append(out, r)
+		}
+	}
+	return out
+}
