@@ -13,30 +13,36 @@ import (
 
 // memoryUse is the estimate of the memory a run needs, by part.
 type memoryUse struct {
-	Mask, Valid, Accumulators, Blocks, Points int64
+	Runs, Valid, Accumulators, Blocks, Points int64
 }
 
 // Total returns the sum of the parts in bytes.
-func (m memoryUse) Total() int64 { return m.Mask + m.Valid + m.Accumulators + m.Blocks + m.Points }
+func (m memoryUse) Total() int64 { return m.Runs + m.Valid + m.Accumulators + m.Blocks + m.Points }
+
+// blockCache is GDAL's block cache as the run sets it when the user does
+// not (see the README's Memory note).
+const blockCache = 64 << 20
 
 // estimateMemory is the one place that estimates the memory of a run from
 // its size; a change to the pass or the family that changes what is held
 // in memory changes it here. Parts:
 //
-//	mask          8 bytes per grid cell (one uint64 membership word)
+//	runs          extents x grid rows x 40 bytes (a row's slice header and,
+//	              typically, one or two runs of two int32 each)
 //	valid         1 bit per grid cell
 //	accumulators  workers x extents x (2 x layout values + 1 + 4096) bins x 16 bytes
-//	blocks        2 x workers block buffers of blockCells float64 values
+//	blocks        workers x one block buffer of blockCells float64 values,
+//	              plus GDAL's 64 MB block cache
 //	points        about 400 bytes per occurrence record (records, lists, results)
 //
 // layoutValues is the number of presence values plus fixed thresholds.
-func estimateMemory(cells int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
+func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
 	bins := int64(2*layoutValues+1) + histBins
 	return memoryUse{
-		Mask:         8 * cells,
+		Runs:         int64(extents) * rows * 40,
 		Valid:        cells / 8,
 		Accumulators: int64(workers) * int64(extents) * bins * 16,
-		Blocks:       2 * int64(workers) * int64(blockCells) * 8,
+		Blocks:       int64(workers)*int64(blockCells)*8 + blockCache,
 		Points:       400 * int64(points),
 	}
 }
@@ -100,15 +106,15 @@ func (s *session) checkMemory() error {
 		workers = 0
 	}
 	layout := len(s.points) + len(o.Thresholds)
-	est := estimateMemory(int64(g.Cells()), o.maxExtents(), workers, layout, 512*512, len(s.points))
+	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, 512*512, len(s.points))
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
-	return badInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the extent masks (8 bytes per cell), "+
+	return badInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the map of cells with data (1 bit per cell) and the extents' row runs, "+
 		"and %d worker(s) x %d extents need %s for the scores; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers or extents",
-		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Mask+est.Valid), workers, o.maxExtents(), gib(est.Accumulators)))
+		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators)))
 }
 
 func gib(b int64) string {

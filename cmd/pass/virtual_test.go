@@ -1,9 +1,11 @@
 package pass
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"path/filepath"
+	"strings"
 	"sync"
 	"testing"
 
@@ -304,5 +306,35 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 				t.Errorf("%d of %d cells differ", bad, g.Cells())
 			}
 		})
+	}
+}
+
+// panicField is a Field with a bug: it panics on the block at column 256.
+type panicField struct{}
+
+func (panicField) Fill(x0, y0, w, h int, need []uint64, dst []float64) {
+	if x0 == 256 {
+		panic("index out of range in a test field")
+	}
+	for i := range dst[:w*h] {
+		dst[i] = float64(i % 7)
+	}
+}
+
+// TestWorkerPanicIsInternalError checks that a panic on a worker ends the
+// pass with an *InternalError naming the panic, for 1 and 2 workers,
+// instead of killing the process or hanging the other workers.
+func TestWorkerPanicIsInternalError(t *testing.T) {
+	g, _, _, fam := nullSetup(t)
+	layout, err := metrics.NewLayout([]float64{3}, 0, 7, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, workers := range []int{1, 2} {
+		_, _, err := NewVirtual(g, panicField{}).Score(g, fam, layout, Options{Workers: workers})
+		var ie *InternalError
+		if !errors.As(err, &ie) || !strings.Contains(err.Error(), "index out of range in a test field") {
+			t.Errorf("workers=%d: error %v, want an *InternalError with the panic's text", workers, err)
+		}
 	}
 }
