@@ -9,6 +9,13 @@
 // the pass. Accumulators hold integer sums, so the result does not depend
 // on the number of workers or the order in which blocks finish.
 //
+// A model whose values are computed rather than read (Virtual: a Field
+// such as the distance-only null) goes through the same workers and code:
+// each worker's Source computes the cells of its block that lie in some
+// extent. Options.Rows lets a caller see each row's values and area
+// weights (the null's sorting-bias tally). A panic on a worker ends the
+// pass with an *InternalError instead of the process.
+//
 // The first model's pass can also record the valid cells it meets
 // (Options.Valid), so that the extent family is clipped without a separate
 // read; values are decoded with the band's scale and offset, and no-data,
