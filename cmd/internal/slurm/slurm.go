@@ -204,7 +204,7 @@ func (p *Plan) check() error {
 // Files are the paths Plan.Write wrote.
 type Files struct {
 	Manifest, Array, Merge string // Merge is "" without a merge command
-	Logs                          string
+	Logs                   string
 }
 
 // Write writes manifest.tsv, array.sh and (with a merge command) merge.sh
