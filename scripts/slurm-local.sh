@@ -93,6 +93,10 @@ AccountingStorageType=accounting_storage/none
 MpiDefault=none
 ReturnToService=2
 MailProg=/bin/true
+# Quick turnaround for small test jobs: schedule every second, no backfill.
+SchedulerType=sched/builtin
+SchedulerParameters=sched_interval=1,sched_min_interval=100000
+MinJobAge=60
 NodeName=$host CPUs=$cpus RealMemory=$mem State=UNKNOWN
 PartitionName=debug Nodes=ALL Default=YES MaxTime=INFINITE State=UP
 EOF
