@@ -96,11 +96,20 @@ func (e *BatchError) Unwrap() error { return e.Err }
 // BatchErrors is every problem found in a study table, in file order.
 type BatchErrors []*BatchError
 
-// Error lists the problems, one per line, after a count.
+// MaxBatchErrorsShown is how many problems BatchErrors.Error lists; the
+// rest are counted.
+const MaxBatchErrorsShown = 50
+
+// Error lists the problems, one per line, after a count (at most
+// MaxBatchErrorsShown of them).
 func (es BatchErrors) Error() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "inputs: %d problem(s) in the study table; nothing was run:", len(es))
-	for _, e := range es {
+	for i, e := range es {
+		if i == MaxBatchErrorsShown {
+			fmt.Fprintf(&b, "\n  ... and %d more; fix the ones above and read the table again", len(es)-i)
+			break
+		}
 		b.WriteString("\n  ")
 		b.WriteString(e.Error())
 	}

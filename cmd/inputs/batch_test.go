@@ -3,6 +3,7 @@ package inputs
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -169,6 +170,19 @@ yew,,p.csv,r.gpkg,,
 	}
 	if !strings.Contains(err.Error(), `t.csv line 4, study "oak", column "id": bad study id: the id is already used on line 3`) {
 		t.Errorf("message for the repeated id:\n%v", err)
+	}
+}
+
+func TestBatchErrorsCapped(t *testing.T) {
+	text := "id" + strings.Repeat(",x", 70) + "\n"
+	_, err := ParseBatch([]byte(text), "t.csv", "", false)
+	var es BatchErrors
+	if !errors.As(err, &es) || len(es) < 70 {
+		t.Fatalf("got %v", err)
+	}
+	msg := err.Error()
+	if n := strings.Count(msg, "\n  inputs: "); n != MaxBatchErrorsShown || !strings.Contains(msg, fmt.Sprintf("... and %d more", len(es)-MaxBatchErrorsShown)) {
+		t.Fatalf("%d problems listed, message ends %q", n, msg[len(msg)-80:])
 	}
 }
 
