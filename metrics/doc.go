@@ -53,6 +53,19 @@
 // and from one set of full-size resamples (Draws, the same index sets for
 // every model and extent) for partial ROC, omission and Boyce.
 //
+// # Partial results and shards
+//
+// EncodeLayout and EncodeAccumulator write a layout and an accumulator
+// exactly (int64 sums, float64 bit patterns) in a versioned, checksummed
+// binary form; DecodeAccumulator accepts an accumulator only onto the layout
+// with the same Fingerprint. Decoded partial accumulators merge into exactly
+// the accumulator of a single pass, so a run split into shards of raster
+// blocks can be merged byte for byte. EncodePartial and DecodePartial wrap
+// named encodings in a partial file with a ShardHeader (tool version, input
+// checksums, settings hash, seed, shard I/N, block ranges), and
+// CheckShardSet refuses a set of shards that is not exactly one run's
+// shards 1..N covering every block once.
+//
 // # Undefined quantities
 //
 // No returned number is NaN or infinite. When the whole record cannot be

@@ -42,6 +42,17 @@
 // Study.Apply copies the settings into a flag set for every flag not given
 // on the command line, so that command-line flags override the study file.
 //
+// # Study table
+//
+// LoadBatch and ParseBatch read the study table of a batch: one row per
+// study (an id and any study-file key except out) and a shared settings
+// block, as CSV ('#' lines at the top hold the shared block, NAME=PATH lists
+// are separated by ';') or YAML (settings: and studies:). The values are
+// decoded by the study-file decoders, rows are laid over the shared block,
+// and every problem is collected (BatchErrors, each a *BatchError with file,
+// line, column and study id) before anything runs. Ids must be unique
+// (ignoring case) and safe as folder names.
+//
 // ParseNamedPath and ParseFloatList parse the NAME=PATH and a,b,c values
 // used by both the flags and the study file.
 package inputs

@@ -1,0 +1,588 @@
+package inputs
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"reflect"
+	"regexp"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
+)
+
+// A study table lists the studies of a batch: one row per study with an id
+// and any study-file key (model, occurrences, region, ecoregions,
+// ecoregion-field, seed, ...), plus a shared settings block whose keys every
+// row inherits and may override. It is read as YAML when the file name ends
+// in .yaml or .yml, else as CSV.
+//
+// CSV form: the first lines starting with '#' form the shared settings
+// block, a study file written after a '#' (the '#' and one space are
+// removed, so "## note" is a comment); then a header line whose columns are
+// id and study keys (model may be written models); then one line per study.
+// Lines starting with '#' after the header are comments. NAME=PATH lists
+// (model, null, extra) hold items separated by ';'; number lists are written
+// as in a study file ("10, 25, 50", quoted in the CSV). An empty cell falls
+// back to the shared setting.
+//
+//	# iterations: 1000
+//	# region-buffers: [100, 250]
+//	id,model,occurrences,region
+//	oak,gbm=oak/gbm.tif;glm=oak/glm.tif,oak/points.csv,oak/region.gpkg
+//
+// YAML form: a mapping with "settings" (a study-file mapping) and "studies"
+// (a list of mappings, each with id and study keys).
+//
+// In both forms relative paths are resolved against the table's folder,
+// every row needs a model, occurrences and a region (its own or shared),
+// and out is not allowed: the batch puts each study into a folder named by
+// its id.
+
+// Sentinel errors of the study-table reader, wrapped in *BatchError.
+var (
+	// ErrBatchSyntax: the table cannot be read as CSV or YAML of the
+	// expected shape.
+	ErrBatchSyntax = errors.New("inputs: study table is malformed")
+	// ErrBatchColumn: a header column is unknown or repeated.
+	ErrBatchColumn = errors.New("inputs: bad column in study table")
+	// ErrBatchID: a study id is missing, unsafe as a folder name, or
+	// repeated.
+	ErrBatchID = errors.New("inputs: bad study id")
+	// ErrBatchMissing: a row lacks a required setting.
+	ErrBatchMissing = errors.New("inputs: study row lacks a required setting")
+	// ErrBatchEmpty: the table lists no study.
+	ErrBatchEmpty = errors.New("inputs: study table lists no study")
+)
+
+// BatchError is one problem in a study table: the file, the line (0 when
+// none applies), the column or key (empty when none applies) and the study
+// id when known. Err wraps a sentinel of this package.
+type BatchError struct {
+	File   string
+	Line   int
+	Column string
+	Study  string
+	Err    error
+}
+
+// Error formats the error as `inputs: FILE line N, study "ID", column "C": message`.
+func (e *BatchError) Error() string {
+	var b strings.Builder
+	b.WriteString("inputs: ")
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, " line %d", e.Line)
+	}
+	if e.Study != "" {
+		fmt.Fprintf(&b, ", study %q", e.Study)
+	}
+	if e.Column != "" {
+		fmt.Fprintf(&b, ", column %q", e.Column)
+	}
+	b.WriteString(": ")
+	b.WriteString(strings.TrimPrefix(e.Err.Error(), "inputs: "))
+	return b.String()
+}
+
+// Unwrap returns the wrapped error.
+func (e *BatchError) Unwrap() error { return e.Err }
+
+// BatchErrors is every problem found in a study table, in file order.
+type BatchErrors []*BatchError
+
+// MaxBatchErrorsShown is how many problems BatchErrors.Error lists; the
+// rest are counted.
+const MaxBatchErrorsShown = 50
+
+// Error lists the problems, one per line, after a count (at most
+// MaxBatchErrorsShown of them).
+func (es BatchErrors) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "inputs: %d problem(s) in the study table; nothing was run:", len(es))
+	for i, e := range es {
+		if i == MaxBatchErrorsShown {
+			fmt.Fprintf(&b, "\n  ... and %d more; fix the ones above and read the table again", len(es)-i)
+			break
+		}
+		b.WriteString("\n  ")
+		b.WriteString(e.Error())
+	}
+	return b.String()
+}
+
+// Unwrap returns the problems, so errors.Is and errors.As look at each.
+func (es BatchErrors) Unwrap() []error {
+	out := make([]error, len(es))
+	for i, e := range es {
+		out[i] = e
+	}
+	return out
+}
+
+// Batch is a parsed study table.
+type Batch struct {
+	// File is the table's name as given.
+	File string
+	// Shared is the shared settings block.
+	Shared *Study
+	// Studies are the rows in file order.
+	Studies []BatchStudy
+}
+
+// BatchStudy is one row: its id, its line in the table, and its settings
+// (the shared block with the row's own values laid over it).
+type BatchStudy struct {
+	ID    string
+	Line  int
+	Study *Study
+}
+
+// MaxBatchStudies caps the rows of a study table.
+const MaxBatchStudies = 100000
+
+var batchIDRE = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$`)
+
+// requiredKeys must be set in every row, by the row or the shared block.
+var requiredKeys = []string{"model", "occurrences", "region"}
+
+// LoadBatch reads the study table at path (YAML for .yaml/.yml, else CSV)
+// and resolves relative paths against its folder. Every problem is
+// reported, as BatchErrors, before anything runs.
+func LoadBatch(path string) (*Batch, error) {
+	if err := checkRegular(path, "study table"); err != nil {
+		return nil, err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
+	if err != nil {
+		if errors.Is(err, ErrTooLarge) {
+			return nil, BatchErrors{{File: path, Err: err}}
+		}
+		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
+	}
+	ext := strings.ToLower(filepath.Ext(path))
+	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
+}
+
+// ParseBatch reads a study table from data; name is used in messages,
+// relative paths are resolved against baseDir, and isYAML picks the form.
+// See LoadBatch.
+func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, error) {
+	if name == "" {
+		name = "study table"
+	}
+	p := &batchParser{name: name, dir: baseDir, b: &Batch{File: name, Shared: &Study{}}}
+	if isYAML {
+		p.parseYAML(data)
+	} else {
+		p.parseCSV(data)
+	}
+	p.finish()
+	if len(p.errs) > 0 {
+		return nil, p.errs
+	}
+	return p.b, nil
+}
+
+type batchParser struct {
+	name string
+	dir  string
+	b    *Batch
+	errs BatchErrors
+	// failed holds, per study, the keys whose value was refused, so that
+	// a bad value is not reported a second time as missing.
+	failed []map[string]bool
+	row    map[string]bool
+}
+
+func (p *batchParser) add(line int, column, study string, err error) {
+	var le *lineErr
+	if errors.As(err, &le) {
+		line, err = le.line, le.err
+	}
+	p.errs = append(p.errs, &BatchError{File: p.name, Line: line, Column: column, Study: study, Err: err})
+}
+
+// setKey decodes one study key into st, reporting a problem against the
+// given line, column and study.
+func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) {
+	if !contains(studyKeys, key) {
+		hint := ""
+		if s := closestKey(key); s != "" {
+			hint = fmt.Sprintf("did you mean %q? ", s)
+		}
+		p.add(v.Line, key, study, fmt.Errorf("%w: %q is not a study key; %sallowed keys are id, %s", ErrBatchColumn, key, hint, strings.Join(batchKeys(), ", ")))
+		return
+	}
+	if key == "out" {
+		p.add(v.Line, key, study, fmt.Errorf("%w: out is not allowed in a study table: each study goes into the batch's output folder, in a folder named by its id", ErrBatchColumn))
+		return
+	}
+	if err := st.set(key, v, p.dir); err != nil {
+		p.add(v.Line, key, study, err)
+		if p.row != nil {
+			p.row[key] = true
+		}
+	}
+}
+
+// batchKeys are the study keys a table accepts.
+func batchKeys() []string {
+	var out []string
+	for _, k := range studyKeys {
+		if k != "out" {
+			out = append(out, k)
+		}
+	}
+	return out
+}
+
+// normKey maps the column alias models to model.
+func normKey(k string) string {
+	k = strings.TrimSpace(k)
+	if k == "models" {
+		return "model"
+	}
+	return k
+}
+
+// mapping decodes a YAML mapping of study keys (the shared block) into st,
+// collecting every problem.
+func (p *batchParser) mapping(st *Study, m *yaml.Node, study string, skip string) {
+	seen := map[string]int{}
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		k, v := deref(m.Content[i]), deref(m.Content[i+1])
+		if k.Kind != yaml.ScalarNode {
+			p.add(k.Line, "", study, fmt.Errorf("%w: a key must be a plain name, found %s", ErrBatchSyntax, kindName(k)))
+			continue
+		}
+		key := normKey(k.Value)
+		if key == skip {
+			continue
+		}
+		if first, dup := seen[key]; dup {
+			p.add(k.Line, key, study, fmt.Errorf("%w: %q already given at line %d; keep only one", ErrBatchColumn, key, first))
+			continue
+		}
+		seen[key] = k.Line
+		if isNull(v) {
+			continue
+		}
+		if v.Line == 0 {
+			v.Line = k.Line
+		}
+		p.setKey(st, key, v, study)
+	}
+}
+
+func (p *batchParser) parseYAML(data []byte) {
+	var doc yaml.Node
+	if err := yaml.Unmarshal(data, &doc); err != nil {
+		line, msg := yamlSyntax(err)
+		p.add(line, "", "", fmt.Errorf("%w: not valid YAML: %s; indent with spaces (not tabs) and quote values that contain ': '", ErrBatchSyntax, msg))
+		return
+	}
+	root := deref(&doc)
+	if root.Kind == yaml.DocumentNode && len(root.Content) > 0 {
+		root = deref(root.Content[0])
+	}
+	const shape = "write a mapping with 'settings:' (shared study keys) and 'studies:' (a list of rows, each with id: and study keys)"
+	if isNull(root) || root.Kind != yaml.MappingNode {
+		p.add(root.Line, "", "", fmt.Errorf("%w: %s", ErrBatchSyntax, shape))
+		return
+	}
+	var studies *yaml.Node
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		k, v := deref(root.Content[i]), deref(root.Content[i+1])
+		switch k.Value {
+		case "settings":
+			if isNull(v) {
+				continue
+			}
+			if v.Kind != yaml.MappingNode {
+				p.add(v.Line, "settings", "", fmt.Errorf("%w: settings must be a mapping of study keys, found %s", ErrBatchSyntax, kindName(v)))
+				continue
+			}
+			p.mapping(p.b.Shared, v, "", "")
+		case "studies":
+			studies = v
+		default:
+			p.add(k.Line, k.Value, "", fmt.Errorf("%w: unknown top-level key %q; %s", ErrBatchSyntax, k.Value, shape))
+		}
+	}
+	if studies == nil || isNull(studies) {
+		return // finish reports the empty table
+	}
+	if studies.Kind != yaml.SequenceNode {
+		p.add(studies.Line, "studies", "", fmt.Errorf("%w: studies must be a list, found %s; %s", ErrBatchSyntax, kindName(studies), shape))
+		return
+	}
+	for _, item := range studies.Content {
+		item = deref(item)
+		if item.Kind != yaml.MappingNode {
+			p.add(item.Line, "", "", fmt.Errorf("%w: each study is a mapping with id: and study keys, found %s", ErrBatchSyntax, kindName(item)))
+			continue
+		}
+		id, idLine := "", item.Line
+		for i := 0; i+1 < len(item.Content); i += 2 {
+			if k := deref(item.Content[i]); k.Kind == yaml.ScalarNode && k.Value == "id" {
+				v := deref(item.Content[i+1])
+				idLine = k.Line
+				if v.Kind == yaml.ScalarNode {
+					id = v.Value
+				}
+			}
+		}
+		if len(p.b.Studies) == MaxBatchStudies {
+			p.add(item.Line, "", "", fmt.Errorf("%w: more than %d studies; split the table", ErrBatchSyntax, MaxBatchStudies))
+			return
+		}
+		st := &Study{}
+		p.row = map[string]bool{}
+		p.mapping(st, item, id, "id")
+		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: idLine, Study: st})
+		p.failed = append(p.failed, p.row)
+		p.row = nil
+	}
+}
+
+func (p *batchParser) parseCSV(data []byte) {
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	// Split off the leading '#' lines (the shared block), keeping line
+	// numbers: the block is parsed with the same line count.
+	var block bytes.Buffer
+	rest := data
+	lines := 0
+	for len(rest) > 0 && rest[0] == '#' {
+		line, after, _ := bytes.Cut(rest, []byte("\n"))
+		text := bytes.TrimPrefix(bytes.TrimSuffix(line, []byte("\r")), []byte("#"))
+		text = bytes.TrimPrefix(text, []byte(" "))
+		block.Write(text)
+		block.WriteByte('\n')
+		lines++
+		rest = after
+	}
+	if lines > 0 {
+		var doc yaml.Node
+		if err := yaml.Unmarshal(block.Bytes(), &doc); err != nil {
+			line, msg := yamlSyntax(err)
+			p.add(line, "", "", fmt.Errorf("%w: the shared settings (the '#' lines at the top) are not valid YAML: %s; write one study key per line, for example\n    # iterations: 1000", ErrBatchSyntax, msg))
+		} else if root := deref(&doc); root.Kind == yaml.DocumentNode && len(root.Content) > 0 {
+			m := deref(root.Content[0])
+			switch {
+			case isNull(m):
+			case m.Kind != yaml.MappingNode:
+				p.add(m.Line, "", "", fmt.Errorf("%w: the '#' lines at the top are the shared settings, one study key per line (# iterations: 1000), found %s", ErrBatchSyntax, kindName(m)))
+			default:
+				p.mapping(p.b.Shared, m, "", "")
+			}
+		}
+	}
+	header, _, _ := bytes.Cut(rest, []byte("\n"))
+	delim := detectDelimiter(header)
+	r := csv.NewReader(bytes.NewReader(rest))
+	r.Comma = delim
+	r.FieldsPerRecord = -1
+	r.Comment = '#'
+	r.ReuseRecord = false
+	var cols []string
+	colOK := true
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			line := 0
+			if errors.As(err, &pe) {
+				line = pe.StartLine + lines
+				err = pe.Err
+			}
+			p.add(line, "", "", fmt.Errorf("%w: %v; quote cells that hold the delimiter or quotes (\"a,b\")", ErrBatchSyntax, err))
+			return
+		}
+		line, _ := r.FieldPos(0)
+		line += lines
+		if cols == nil {
+			cols = p.header(rec, line, delim)
+			if cols == nil {
+				colOK = false
+				cols = []string{}
+			}
+			continue
+		}
+		if !colOK || allBlank(rec) {
+			continue
+		}
+		if len(rec) != len(cols) {
+			p.add(line, "", strings.TrimSpace(rec[0]), fmt.Errorf("%w: %d cells, the header has %d columns; every row needs one cell per column (empty cells are allowed)%s",
+				ErrBatchSyntax, len(rec), len(cols), commaHint(delim, len(rec), len(cols))))
+			continue
+		}
+		if len(p.b.Studies) == MaxBatchStudies {
+			p.add(line, "", "", fmt.Errorf("%w: more than %d studies; split the table", ErrBatchSyntax, MaxBatchStudies))
+			return
+		}
+		id := strings.TrimSpace(rec[0])
+		st := &Study{}
+		p.row = map[string]bool{}
+		for j := 1; j < len(rec); j++ {
+			cell := strings.TrimSpace(rec[j])
+			if cell == "" {
+				continue
+			}
+			cl, _ := r.FieldPos(j)
+			p.setKey(st, cols[j], cellNode(cols[j], cell, cl+lines), id)
+		}
+		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: line, Study: st})
+		p.failed = append(p.failed, p.row)
+		p.row = nil
+	}
+	if cols == nil {
+		p.add(lines+1, "", "", fmt.Errorf("%w: no header line; write id,model,occurrences,region (and any other study key) as the first line after the '#' settings", ErrBatchSyntax))
+	}
+}
+
+// header checks the header line: id first, then distinct study keys. It
+// returns nil when the header is unusable.
+func (p *batchParser) header(rec []string, line int, delim rune) []string {
+	cols := make([]string, len(rec))
+	ok := true
+	seen := map[string]int{}
+	for j, c := range rec {
+		c = normKey(strings.ToLower(c))
+		cols[j] = c
+		switch {
+		case j == 0 && c != "id":
+			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], commaHint(delim, len(rec), 4)))
+			ok = false
+		case j == 0:
+		case c == "id":
+			p.add(line, c, "", fmt.Errorf("%w: id appears again in column %d", ErrBatchColumn, j+1))
+			ok = false
+		case c == "out" || !contains(studyKeys, c):
+			hint := ""
+			if s := closestKey(c); s != "" && s != "out" && c != "out" {
+				hint = fmt.Sprintf("did you mean %q? ", s)
+			}
+			why := "is not a study key"
+			if c == "out" {
+				why = "is not allowed: each study goes into the batch's output folder, in a folder named by its id"
+			}
+			p.add(line, c, "", fmt.Errorf("%w: column %d %q %s; %sallowed columns are id, %s", ErrBatchColumn, j+1, rec[j], why, hint, strings.Join(batchKeys(), ", ")))
+			ok = false
+		}
+		if first, dup := seen[c]; dup && j > 0 && c != "id" {
+			p.add(line, c, "", fmt.Errorf("%w: columns %d and %d are both %q", ErrBatchColumn, first, j+1, c))
+			ok = false
+		}
+		seen[c] = j + 1
+	}
+	if !ok {
+		return nil
+	}
+	return cols
+}
+
+// yamlSyntax returns a YAML reader error's message without its "yaml:
+// line N:" prefix, saying "near line N" instead: the reader's line can be
+// one early (see syntaxError), so no exact line is claimed (the returned
+// line is 0).
+func yamlSyntax(err error) (int, string) {
+	near := ""
+	if m := yamlLineRE.FindStringSubmatch(err.Error()); m != nil {
+		near = " near line " + m[1]
+	}
+	msg := strings.TrimPrefix(err.Error(), "yaml: ")
+	msg = yamlLineRE.ReplaceAllString(msg, "")
+	return 0, strings.Trim(msg, " :") + near
+}
+
+// cellNode turns a CSV cell into the YAML node a study file would hold:
+// NAME=PATH lists split at ';' into a list, anything else a plain scalar
+// whose type is resolved as in YAML.
+func cellNode(key, cell string, line int) *yaml.Node {
+	switch key {
+	case "model", "null", "extra":
+		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line}
+		for _, part := range strings.Split(cell, ";") {
+			n.Content = append(n.Content, &yaml.Node{Kind: yaml.ScalarNode, Value: strings.TrimSpace(part), Line: line})
+		}
+		return n
+	}
+	return &yaml.Node{Kind: yaml.ScalarNode, Value: cell, Line: line}
+}
+
+// finish checks ids and required keys and lays every row over the shared
+// block.
+func (p *batchParser) finish() {
+	if len(p.b.Studies) == 0 && len(p.errs) == 0 {
+		p.add(0, "", "", fmt.Errorf("%w: add one row per study", ErrBatchEmpty))
+		return
+	}
+	seen := map[string]int{}
+	for i := range p.b.Studies {
+		s := &p.b.Studies[i]
+		switch {
+		case s.ID == "":
+			p.add(s.Line, "id", "", fmt.Errorf("%w: the id is empty; give every study an id (letters, digits, '_', '-', '.')", ErrBatchID))
+		case !batchIDRE.MatchString(s.ID):
+			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 letters, digits, '_', '-' or '.', starting with a letter or digit", ErrBatchID, shown(s.ID)))
+		default:
+			low := strings.ToLower(s.ID)
+			if first, dup := seen[low]; dup {
+				p.add(s.Line, "id", s.ID, fmt.Errorf("%w: the id is already used on line %d (ids are compared ignoring case, as folder names on some systems); give each study its own id", ErrBatchID, first))
+			} else {
+				seen[low] = s.Line
+			}
+		}
+		merged := overlay(p.b.Shared, s.Study)
+		for _, k := range requiredKeys {
+			if p.failed[i][k] {
+				continue // its bad value is already reported
+			}
+			if v, present := merged.flagValues(k, func(float64) string { return "" }); !present || len(v) == 0 {
+				p.add(s.Line, k, s.ID, fmt.Errorf("%w: no %s for this study; give it in the row or in the shared settings", ErrBatchMissing, k))
+			}
+		}
+		s.Study = merged
+	}
+}
+
+// overlay returns a copy of base with every setting present in top laid
+// over it (a list in top replaces base's list as a whole).
+func overlay(base, top *Study) *Study {
+	out := *base
+	ov, tv := reflect.ValueOf(&out).Elem(), reflect.ValueOf(top).Elem()
+	for i := range tv.NumField() {
+		if f := tv.Field(i); !f.IsNil() {
+			ov.Field(i).Set(f)
+		}
+	}
+	return &out
+}
+
+// WriteBatchTemplate writes an example CSV study table to w, for users to
+// start from.
+func WriteBatchTemplate(w io.Writer) error {
+	bw := bufio.NewWriter(w)
+	fmt.Fprint(bw, `# iterations: 1000
+# region-buffers: [100, 250]
+## Shared settings above ('#' lines, study-file keys); one study per row below.
+id,model,occurrences,region,ecoregions,ecoregion-field
+oak,gbm=oak/gbm.tif;glm=oak/glm.tif,oak/points.csv,oak/region.gpkg,,
+lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
+`)
+	return bw.Flush()
+}

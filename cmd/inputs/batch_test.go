@@ -1,0 +1,258 @@
+package inputs
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+	"unicode/utf8"
+)
+
+// Expected values are by construction: each table is written here and the
+// expected settings and errors are read off it by hand.
+
+const batchCSV = `# iterations: 1000
+# region-buffers: [100, 250]
+# seed: 7
+## a comment inside the shared block
+id,models,occurrences,region,ecoregions,ecoregion-field,seed,region-buffers
+oak,gbm=oak/gbm.tif; glm=/abs/glm.tif,oak/points.csv,oak/region.gpkg,,,,
+# a row commented out
+lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME,42,"5, 10"
+`
+
+const batchYAML = `settings:
+  iterations: 1000
+  region-buffers: [100, 250]
+  seed: 7
+studies:
+  - id: oak
+    model: [gbm=oak/gbm.tif, glm=/abs/glm.tif]
+    occurrences: oak/points.csv
+    region: oak/region.gpkg
+  - id: lynx
+    models:
+      gbm: lynx/gbm.tif
+    occurrences: lynx/points.csv
+    region: lynx/region.gpkg
+    ecoregions: eco.gpkg
+    ecoregion-field: ECO_NAME
+    seed: 42
+    region-buffers: [5, 10]
+`
+
+func wantBatch(dir string) []BatchStudy {
+	j := func(p string) string { return filepath.Join(dir, p) }
+	return []BatchStudy{
+		{ID: "oak", Study: &Study{
+			Model: []string{"gbm=" + j("oak/gbm.tif"), "glm=/abs/glm.tif"}, Occurrences: ptr(j("oak/points.csv")),
+			Region: ptr(j("oak/region.gpkg")), Iterations: ptr(1000), RegionBuffers: []float64{100, 250}, Seed: ptr(uint64(7)),
+		}},
+		{ID: "lynx", Study: &Study{
+			Model: []string{"gbm=" + j("lynx/gbm.tif")}, Occurrences: ptr(j("lynx/points.csv")),
+			Region: ptr(j("lynx/region.gpkg")), Ecoregions: ptr(j("eco.gpkg")), EcoregionField: ptr("ECO_NAME"),
+			Iterations: ptr(1000), RegionBuffers: []float64{5, 10}, Seed: ptr(uint64(42)),
+		}},
+	}
+}
+
+func TestBatchCSVAndYAMLAgree(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		file, text string
+		lines      []int
+	}{
+		{"studies.csv", batchCSV, []int{6, 8}},
+		{"studies.yaml", batchYAML, []int{6, 10}},
+	} {
+		path := filepath.Join(dir, c.file)
+		if err := os.WriteFile(path, []byte(c.text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		b, err := LoadBatch(path)
+		if err != nil {
+			t.Fatalf("%s: %v", c.file, err)
+		}
+		want := wantBatch(dir)
+		for i := range want {
+			want[i].Line = c.lines[i]
+		}
+		if !reflect.DeepEqual(b.Studies, want) {
+			for i := range b.Studies {
+				t.Logf("got %+v %+v", b.Studies[i], *b.Studies[i].Study)
+			}
+			t.Fatalf("%s: studies differ", c.file)
+		}
+		if *b.Shared.Iterations != 1000 || b.Shared.Model != nil {
+			t.Fatalf("%s: shared %+v", c.file, *b.Shared)
+		}
+	}
+}
+
+func TestBatchTemplateParses(t *testing.T) {
+	var buf bytes.Buffer
+	if err := WriteBatchTemplate(&buf); err != nil {
+		t.Fatal(err)
+	}
+	b, err := ParseBatch(buf.Bytes(), "template.csv", "/data", false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(b.Studies) != 2 || b.Studies[1].ID != "lynx" || *b.Studies[1].Study.Ecoregions != "/data/eco.gpkg" {
+		t.Fatalf("template: %+v", b.Studies)
+	}
+}
+
+func TestBatchSemicolonTable(t *testing.T) {
+	text := "id;model;occurrences;region;fraction\noak;gbm=a.tif;p.csv;r.gpkg;0.5\n"
+	b, err := ParseBatch([]byte(text), "t.csv", "", false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := b.Studies[0].Study; got.Model[0] != "gbm=a.tif" || *got.Fraction != 0.5 {
+		t.Fatalf("%+v", *got)
+	}
+}
+
+// TestBatchCollectsEveryError: one table with many bad rows reports every
+// one of them, each with its line and column.
+func TestBatchCollectsEveryError(t *testing.T) {
+	text := `# iterations: 1000
+id,model,occurrences,region,seed,fraction
+oak,gbm=a.tif,p.csv,r.gpkg,,
+oak,gbm=b.tif,p.csv,r.gpkg,,
+../up,gbm=c.tif,p.csv,r.gpkg,,
+,gbm=d.tif,p.csv,r.gpkg,,
+fir,gbm,p.csv,r.gpkg,,
+pine,gbm=e.tif,p.csv,r.gpkg,-1,
+ash,gbm=f.tif,p.csv,,,half
+elm,gbm=g.tif,p.csv
+OAK,gbm=h.tif,p.csv,r.gpkg,,
+yew,,p.csv,r.gpkg,,
+`
+	_, err := ParseBatch([]byte(text), "t.csv", "", false)
+	var es BatchErrors
+	if !errors.As(err, &es) {
+		t.Fatalf("not BatchErrors: %v", err)
+	}
+	type want struct {
+		line   int
+		column string
+		kind   error
+	}
+	wants := []want{
+		{7, "model", ErrBadValue},      // fir: gbm has no '='
+		{8, "seed", ErrBadValue},       // pine: negative seed
+		{9, "fraction", ErrBadValue},   // ash: not a number
+		{10, "", ErrBatchSyntax},       // elm: 3 cells
+		{4, "id", ErrBatchID},          // second oak
+		{5, "id", ErrBatchID},          // ../up
+		{6, "id", ErrBatchID},          // empty id
+		{9, "region", ErrBatchMissing}, // ash: no region
+		{11, "id", ErrBatchID},         // OAK repeats oak ignoring case
+		{12, "model", ErrBatchMissing}, // yew: no model (fir's bad model is not reported again as missing)
+	}
+	if len(es) != len(wants) {
+		t.Fatalf("%d errors, want %d:\n%v", len(es), len(wants), err)
+	}
+	for i, w := range wants {
+		e := es[i]
+		if e.Line != w.line || e.Column != w.column || !errors.Is(e, w.kind) || e.File != "t.csv" {
+			t.Errorf("error %d: %v (line %d column %q); want line %d column %q %v", i, e, e.Line, e.Column, w.line, w.column, w.kind)
+		}
+	}
+	if !errors.Is(err, ErrBatchID) || !strings.Contains(err.Error(), "10 problem(s)") {
+		t.Errorf("joined error: %v", err)
+	}
+	if !strings.Contains(err.Error(), `t.csv line 4, study "oak", column "id": bad study id: the id is already used on line 3`) {
+		t.Errorf("message for the repeated id:\n%v", err)
+	}
+}
+
+func TestBatchErrorsCapped(t *testing.T) {
+	text := "id" + strings.Repeat(",x", 70) + "\n"
+	_, err := ParseBatch([]byte(text), "t.csv", "", false)
+	var es BatchErrors
+	if !errors.As(err, &es) || len(es) < 70 {
+		t.Fatalf("got %v", err)
+	}
+	msg := err.Error()
+	if n := strings.Count(msg, "\n  inputs: "); n != MaxBatchErrorsShown || !strings.Contains(msg, fmt.Sprintf("... and %d more", len(es)-MaxBatchErrorsShown)) {
+		t.Fatalf("%d problems listed, message ends %q", n, msg[len(msg)-80:])
+	}
+}
+
+func TestBatchRefuses(t *testing.T) {
+	cases := []struct {
+		name, text string
+		yaml       bool
+		want       error
+		words      string
+	}{
+		{"empty csv", "", false, ErrBatchSyntax, "no header line"},
+		{"header only", "id,model,occurrences,region\n", false, ErrBatchEmpty, "no study"},
+		{"first column", "name,model\n", false, ErrBatchColumn, "first column must be id"},
+		{"unknown column", "id,modell,occurrences,region\n", false, ErrBatchColumn, `did you mean "model"?`},
+		{"out column", "id,model,out\n", false, ErrBatchColumn, "out"},
+		{"duplicate column", "id,model,models\n", false, ErrBatchColumn, "columns 2 and 3"},
+		{"bad shared", "# iterations: many\nid,model,occurrences,region\na,m=x,p,r\n", false, ErrBadValue, "line 1"},
+		{"shared not yaml", "# : : [\nid,model\n", false, ErrBatchSyntax, "shared settings"},
+		{"bad quote", "id,model,occurrences,region\na,\"m=x,p,r\n", false, ErrBatchSyntax, "quote"},
+		{"yaml list root", "- a\n", true, ErrBatchSyntax, "settings:"},
+		{"yaml unknown top", "studys: []\n", true, ErrBatchSyntax, `"studys"`},
+		{"yaml out", "settings:\n  out: x\nstudies:\n  - {id: a, model: m=x, occurrences: p, region: r}\n", true, ErrBatchColumn, "out is not allowed"},
+		{"yaml row scalar", "studies:\n  - oak\n", true, ErrBatchSyntax, "mapping with id"},
+		{"yaml bad key", "studies:\n  - {id: a, model: m=x, occurrences: p, region: r, iteration: 5}\n", true, ErrBatchColumn, `did you mean "iterations"`},
+		{"yaml dup key", "studies:\n  - id: a\n    model: m=x\n    models: m=y\n", true, ErrBatchColumn, "already given"},
+		{"yaml syntax", "studies: [\n", true, ErrBatchSyntax, "not valid YAML"},
+		{"yaml empty", "", true, ErrBatchSyntax, "settings:"},
+		{"yaml no studies", "settings: {iterations: 5}\n", true, ErrBatchEmpty, "no study"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ParseBatch([]byte(c.text), "t", "", c.yaml)
+			if !errors.Is(err, c.want) || !strings.Contains(err.Error(), c.words) {
+				t.Fatalf("got %v; want %v with %q", err, c.want, c.words)
+			}
+		})
+	}
+}
+
+// FuzzParseBatch: any bytes, as CSV and as YAML, give either a batch whose
+// ids are unique, safe folder names with the required settings, or
+// BatchErrors; never a panic.
+func FuzzParseBatch(f *testing.F) {
+	f.Add([]byte(batchCSV))
+	f.Add([]byte(batchYAML))
+	f.Add([]byte("# seed: 1\nid;model;occurrences;region\na;m=x;p;r\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		for _, isYAML := range []bool{false, true} {
+			b, err := ParseBatch(data, "f", "/base", isYAML)
+			if err != nil {
+				var es BatchErrors
+				if !errors.As(err, &es) || len(es) == 0 {
+					t.Fatalf("error is not BatchErrors: %v", err)
+				}
+				if !utf8.ValidString(err.Error()) && utf8.Valid(data) {
+					t.Fatalf("message is not UTF-8")
+				}
+				continue
+			}
+			seen := map[string]bool{}
+			for _, s := range b.Studies {
+				low := strings.ToLower(s.ID)
+				if !batchIDRE.MatchString(s.ID) || seen[low] {
+					t.Fatalf("accepted id %q", s.ID)
+				}
+				seen[low] = true
+				if len(s.Study.Model) == 0 || s.Study.Occurrences == nil || s.Study.Region == nil || s.Study.Out != nil {
+					t.Fatalf("accepted study %q without model/occurrences/region or with out", s.ID)
+				}
+			}
+		}
+	})
+}

@@ -1,0 +1,481 @@
+package slurm
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// MarkerName is the file whose presence in a task's output folder means the
+// task finished successfully.
+const MarkerName = ".areasweep-done"
+
+// Task is one unit of an array: a study (or one shard of it) and the folder
+// its outputs go to.
+type Task struct {
+	// Study is the study id.
+	Study string
+	// Shard and Shards give the share I/N of the study's raster blocks;
+	// 1/1 is the whole study.
+	Shard, Shards int
+	// Out is the task's output folder (absolute, so that it does not depend
+	// on the job's working directory).
+	Out string
+}
+
+// Sentinel errors, wrapped with details.
+var (
+	// ErrManifest: a manifest line or a task is malformed.
+	ErrManifest = errors.New("slurm: bad task manifest")
+	// ErrPlan: the plan is incomplete or inconsistent.
+	ErrPlan = errors.New("slurm: bad job plan")
+	// ErrSubmit: sbatch failed or printed no job id.
+	ErrSubmit = errors.New("slurm: submission failed")
+)
+
+func (t Task) check() error {
+	switch {
+	case t.Study == "" || strings.ContainsAny(t.Study, "\t\r\n"):
+		return fmt.Errorf("study id %q is empty or holds a tab or line break", t.Study)
+	case t.Shards < 1 || t.Shard < 1 || t.Shard > t.Shards:
+		return fmt.Errorf("shard %d/%d: want 1 <= I <= N", t.Shard, t.Shards)
+	case !filepath.IsAbs(t.Out) || strings.ContainsAny(t.Out, "\t\r\n"):
+		return fmt.Errorf("output folder %q is not absolute or holds a tab or line break", t.Out)
+	}
+	return nil
+}
+
+const manifestHeader = "study\tshard\tout"
+
+// WriteManifest writes tasks as a manifest (see the package comment).
+func WriteManifest(w io.Writer, tasks []Task) error {
+	bw := bufio.NewWriter(w)
+	fmt.Fprintln(bw, manifestHeader)
+	for i, t := range tasks {
+		if err := t.check(); err != nil {
+			return fmt.Errorf("%w: task %d: %v", ErrManifest, i+1, err)
+		}
+		fmt.Fprintf(bw, "%s\t%d/%d\t%s\n", t.Study, t.Shard, t.Shards, t.Out)
+	}
+	return bw.Flush()
+}
+
+// ReadManifest reads a manifest written by WriteManifest; name is used in
+// messages ("FILE line N: ...").
+func ReadManifest(r io.Reader, name string) ([]Task, error) {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(nil, 1<<20)
+	var tasks []Task
+	line := 0
+	for sc.Scan() {
+		line++
+		text := sc.Text()
+		if line == 1 {
+			if text != manifestHeader {
+				return nil, fmt.Errorf("%w: %s line 1: header is %q, want %q", ErrManifest, name, text, manifestHeader)
+			}
+			continue
+		}
+		f := strings.Split(text, "\t")
+		if len(f) != 3 {
+			return nil, fmt.Errorf("%w: %s line %d: %d fields, want 3 (study, shard, out) separated by tabs", ErrManifest, name, line, len(f))
+		}
+		i, n, ok := parseShard(f[1])
+		if !ok {
+			return nil, fmt.Errorf("%w: %s line %d: shard %q is not I/N", ErrManifest, name, line, f[1])
+		}
+		t := Task{Study: f[0], Shard: i, Shards: n, Out: f[2]}
+		if err := t.check(); err != nil {
+			return nil, fmt.Errorf("%w: %s line %d: %v", ErrManifest, name, line, err)
+		}
+		tasks = append(tasks, t)
+	}
+	if err := sc.Err(); err != nil {
+		return nil, fmt.Errorf("%w: %s: %w", ErrManifest, name, err)
+	}
+	if line == 0 {
+		return nil, fmt.Errorf("%w: %s is empty", ErrManifest, name)
+	}
+	return tasks, nil
+}
+
+func parseShard(s string) (i, n int, ok bool) {
+	a, b, found := strings.Cut(s, "/")
+	if !found {
+		return 0, 0, false
+	}
+	i, err1 := strconv.Atoi(a)
+	n, err2 := strconv.Atoi(b)
+	return i, n, err1 == nil && err2 == nil && strconv.Itoa(i) == a && strconv.Itoa(n) == b
+}
+
+// Plan describes one batch on the scheduler: the tasks, the command each
+// runs, the merge command and the resources.
+type Plan struct {
+	// Name is the job name (1 to 64 letters, digits, '_', '-', '.').
+	Name string
+	// Dir is the folder for the manifest, the scripts and the job logs
+	// (absolute).
+	Dir string
+	// Tasks are the array's tasks; task k is array index k (from 1).
+	Tasks []Task
+	// TaskCommand is a shell command run for each task, with the task in
+	// the environment: AREASWEEP_STUDY, AREASWEEP_SHARD (I), AREASWEEP_SHARDS
+	// (N) and AREASWEEP_OUT (the output folder, created before the command
+	// runs). A task counts as finished when it exits with status 0.
+	TaskCommand string
+	// MergeCommand is a shell command run once after every task succeeded,
+	// with AREASWEEP_MANIFEST set to the manifest's path. Empty: no merge
+	// job.
+	MergeCommand string
+	// MemoryMB is the memory per task in MiB (see MemoryMB).
+	MemoryMB int
+	// CPUs is the number of CPUs per task (at least 1).
+	CPUs int
+	// TimeLimit is passed to --time when not empty (for example "02:00:00").
+	TimeLimit string
+	// Partition is passed to --partition when not empty.
+	Partition string
+	// MaxParallel limits how many array tasks run at once (0: no limit).
+	MaxParallel int
+}
+
+var jobNameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,64}$`)
+var timeRE = regexp.MustCompile(`^[0-9:\-]{1,20}$`)
+
+// MemoryMB turns a memory estimate in bytes into the --mem figure of one
+// task: the estimate plus a quarter plus 256 MiB for the program itself,
+// rounded up to whole MiB. The headroom is our own choice: the estimate
+// counts the large buffers, not the runtime's and the libraries' overhead.
+func MemoryMB(estimateBytes int64) int {
+	const mib = 1 << 20
+	if estimateBytes < 0 {
+		estimateBytes = 0
+	}
+	need := estimateBytes + estimateBytes/4 + 256*mib
+	return int((need + mib - 1) / mib)
+}
+
+func (p *Plan) check() error {
+	bad := func(format string, a ...any) error { return fmt.Errorf("%w: "+format, append([]any{ErrPlan}, a...)...) }
+	switch {
+	case !jobNameRE.MatchString(p.Name):
+		return bad("job name %q: use 1 to 64 letters, digits, '_', '-' or '.'", p.Name)
+	case !filepath.IsAbs(p.Dir):
+		return bad("folder %q must be absolute", p.Dir)
+	case len(p.Tasks) == 0:
+		return bad("no tasks")
+	case strings.TrimSpace(p.TaskCommand) == "":
+		return bad("no task command")
+	case p.MemoryMB < 1:
+		return bad("memory per task is %d MiB; give the estimate through MemoryMB", p.MemoryMB)
+	case p.CPUs < 1:
+		return bad("CPUs per task is %d, want at least 1", p.CPUs)
+	case p.TimeLimit != "" && !timeRE.MatchString(p.TimeLimit):
+		return bad("time limit %q: write for example 02:00:00 or 1-00:00:00", p.TimeLimit)
+	case p.Partition != "" && !jobNameRE.MatchString(p.Partition):
+		return bad("partition %q: use letters, digits, '_', '-' or '.'", p.Partition)
+	case p.MaxParallel < 0:
+		return bad("at most %d tasks at once: want 0 (no limit) or more", p.MaxParallel)
+	}
+	seen := map[string]int{}
+	for i, t := range p.Tasks {
+		if err := t.check(); err != nil {
+			return bad("task %d: %v", i+1, err)
+		}
+		if j, dup := seen[filepath.Clean(t.Out)]; dup {
+			return bad("tasks %d and %d write to the same folder %s", j, i+1, t.Out)
+		}
+		seen[filepath.Clean(t.Out)] = i + 1
+	}
+	return nil
+}
+
+// Files are the paths Plan.Write wrote.
+type Files struct {
+	Manifest, Array, Merge string // Merge is "" without a merge command
+	Logs                   string
+}
+
+// Write writes manifest.tsv, array.sh and (with a merge command) merge.sh
+// into p.Dir, each atomically (temporary file, then rename), and creates
+// p.Dir/logs. It overwrites only those files, so writing the same plan
+// again is harmless.
+func (p *Plan) Write() (Files, error) {
+	if err := p.check(); err != nil {
+		return Files{}, err
+	}
+	f := Files{
+		Manifest: filepath.Join(p.Dir, "manifest.tsv"),
+		Array:    filepath.Join(p.Dir, "array.sh"),
+		Logs:     filepath.Join(p.Dir, "logs"),
+	}
+	if err := os.MkdirAll(f.Logs, 0o755); err != nil {
+		return Files{}, fmt.Errorf("slurm: creating the job folder: %w", err)
+	}
+	var m bytes.Buffer
+	if err := WriteManifest(&m, p.Tasks); err != nil {
+		return Files{}, err
+	}
+	if err := writeAtomic(f.Manifest, m.Bytes(), 0o644); err != nil {
+		return Files{}, err
+	}
+	if err := writeAtomic(f.Array, []byte(p.arrayScript(f)), 0o755); err != nil {
+		return Files{}, err
+	}
+	if p.MergeCommand != "" {
+		f.Merge = filepath.Join(p.Dir, "merge.sh")
+		if err := writeAtomic(f.Merge, []byte(p.mergeScript(f)), 0o755); err != nil {
+			return Files{}, err
+		}
+	}
+	return f, nil
+}
+
+func writeAtomic(path string, data []byte, mode os.FileMode) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("slurm: writing %s: %w", path, err)
+	}
+	_, err = tmp.Write(data)
+	if err == nil {
+		err = tmp.Chmod(mode)
+	}
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), path)
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("slurm: writing %s: %w", path, err)
+	}
+	return nil
+}
+
+// Quote returns s quoted for a POSIX shell.
+func Quote(s string) string { return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'" }
+
+func (p *Plan) resources(b *strings.Builder) {
+	fmt.Fprintf(b, "#SBATCH --mem=%dM\n", p.MemoryMB)
+	fmt.Fprintf(b, "#SBATCH --cpus-per-task=%d\n", p.CPUs)
+	fmt.Fprintf(b, "#SBATCH --ntasks=1\n")
+	if p.TimeLimit != "" {
+		fmt.Fprintf(b, "#SBATCH --time=%s\n", p.TimeLimit)
+	}
+	if p.Partition != "" {
+		fmt.Fprintf(b, "#SBATCH --partition=%s\n", p.Partition)
+	}
+}
+
+// arrayScript is the job script of the array. The array range is given on
+// the sbatch command line (Submit), so the same script serves a first
+// submission and a resubmission of the unfinished tasks.
+func (p *Plan) arrayScript(f Files) string {
+	var b strings.Builder
+	b.WriteString("#!/bin/bash\n")
+	fmt.Fprintf(&b, "#SBATCH --job-name=%s\n", p.Name)
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "task-%a.log"))
+	p.resources(&b)
+	b.WriteString(`# Written by areasweep. One array task runs line $SLURM_ARRAY_TASK_ID of the
+# manifest; it is skipped when its output folder holds the marker, which is
+# written last and atomically, only after the command succeeded.
+set -euo pipefail
+`)
+	fmt.Fprintf(&b, "manifest=%s\n", Quote(f.Manifest))
+	fmt.Fprintf(&b, "marker=%s\n", Quote(MarkerName))
+	b.WriteString(`k="${SLURM_ARRAY_TASK_ID:?run this script with sbatch --array}"
+line="$(awk -v k="$k" 'NR == k + 1 { print; found = 1 } END { exit !found }' "$manifest")" ||
+  { echo "areasweep task $k: no line $k in $manifest" >&2; exit 2; }
+IFS=$'\t' read -r study shard out <<<"$line"
+if [ -f "$out/$marker" ]; then
+  echo "areasweep task $k ($study $shard): already finished, skipped"
+  exit 0
+fi
+mkdir -p "$out"
+export AREASWEEP_STUDY="$study" AREASWEEP_SHARD="${shard%/*}" AREASWEEP_SHARDS="${shard#*/}" AREASWEEP_OUT="$out"
+echo "areasweep task $k ($study $shard): started on $(hostname) at $(date -u +%FT%TZ)"
+(
+`)
+	b.WriteString(p.TaskCommand)
+	b.WriteString(`
+)
+tmp="$(mktemp "$out/.$marker.XXXXXX")"
+printf 'study\t%s\nshard\t%s\nfinished\t%s\njob\t%s_%s\n' "$study" "$shard" "$(date -u +%FT%TZ)" \
+  "${SLURM_ARRAY_JOB_ID:-}" "$k" >"$tmp"
+sync "$tmp" 2>/dev/null || true
+mv -f "$tmp" "$out/$marker"
+echo "areasweep task $k ($study $shard): finished"
+`)
+	return b.String()
+}
+
+func (p *Plan) mergeScript(f Files) string {
+	var b strings.Builder
+	b.WriteString("#!/bin/bash\n")
+	fmt.Fprintf(&b, "#SBATCH --job-name=%s-merge\n", p.Name)
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "merge-%j.log"))
+	p.resources(&b)
+	b.WriteString("# Written by areasweep. Runs after every array task succeeded (afterok).\nset -euo pipefail\n")
+	fmt.Fprintf(&b, "export AREASWEEP_MANIFEST=%s\n", Quote(f.Manifest))
+	b.WriteString(p.MergeCommand)
+	b.WriteString("\n")
+	return b.String()
+}
+
+// Finished reports whether the task's output folder holds the marker.
+func Finished(t Task) bool {
+	fi, err := os.Stat(filepath.Join(t.Out, MarkerName))
+	return err == nil && fi.Mode().IsRegular()
+}
+
+// Pending returns the array indices (from 1) of the tasks not finished.
+func (p *Plan) Pending() []int {
+	var out []int
+	for i, t := range p.Tasks {
+		if !Finished(t) {
+			out = append(out, i+1)
+		}
+	}
+	return out
+}
+
+// ArraySpec writes ascending indices as an --array list of ranges, for
+// example [1 2 3 5 7 8] as "1-3,5,7-8"; max > 0 appends "%max" (at most
+// that many tasks at once).
+func ArraySpec(ids []int, max int) string {
+	var parts []string
+	for i := 0; i < len(ids); {
+		j := i
+		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
+			j++
+		}
+		if j == i {
+			parts = append(parts, strconv.Itoa(ids[i]))
+		} else {
+			parts = append(parts, fmt.Sprintf("%d-%d", ids[i], ids[j]))
+		}
+		i = j + 1
+	}
+	s := strings.Join(parts, ",")
+	if max > 0 && s != "" {
+		s += "%" + strconv.Itoa(max)
+	}
+	return s
+}
+
+// Submission is what Submit started. MergeJob is "" when there was no merge
+// job; ArrayJob is "" when no task was pending.
+type Submission struct {
+	ArrayJob, MergeJob string
+	// Tasks are the array indices submitted.
+	Tasks []int
+}
+
+// Submitter runs sbatch. Env, when not nil, replaces the environment of
+// the commands (for example to set SLURM_CONF).
+type Submitter struct {
+	Env []string
+}
+
+// Submit submits the array for the given task indices (normally
+// p.Pending()) and, when files has a merge script, the merge job with
+// --dependency=afterok on the array. With no index given it submits the
+// merge job alone (every task is finished), without a dependency.
+func (s Submitter) Submit(ctx context.Context, p *Plan, f Files, ids []int) (Submission, error) {
+	sub := Submission{Tasks: ids}
+	if len(ids) > 0 {
+		jid, err := s.sbatch(ctx, "--array="+ArraySpec(ids, p.MaxParallel), f.Array)
+		if err != nil {
+			return sub, err
+		}
+		sub.ArrayJob = jid
+	}
+	if f.Merge != "" {
+		args := []string{f.Merge}
+		if sub.ArrayJob != "" {
+			args = []string{"--dependency=afterok:" + sub.ArrayJob, "--kill-on-invalid-dep=yes", f.Merge}
+		}
+		jid, err := s.sbatch(ctx, args...)
+		if err != nil {
+			return sub, err
+		}
+		sub.MergeJob = jid
+	}
+	return sub, nil
+}
+
+var jobIDRE = regexp.MustCompile(`^[0-9]+$`)
+
+// sbatch runs "sbatch --parsable ARGS" and returns the job id.
+func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
+	cmd := exec.CommandContext(ctx, "sbatch", append([]string{"--parsable"}, args...)...)
+	cmd.Env = s.Env
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	out, err := cmd.Output()
+	if err != nil {
+		return "", fmt.Errorf("%w: sbatch %s: %v: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+	}
+	// --parsable prints "JID" or "JID;CLUSTER".
+	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")
+	if !jobIDRE.MatchString(id) {
+		return "", fmt.Errorf("%w: sbatch printed %q, not a job id", ErrSubmit, strings.TrimSpace(string(out)))
+	}
+	return id, nil
+}
+
+// Wait polls squeue every interval until none of the jobs is queued or
+// running any more, or ctx ends. It does not say whether the jobs
+// succeeded: look at the markers (Pending) and the logs.
+func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...string) error {
+	var ids []string
+	for _, j := range jobs {
+		if j != "" {
+			ids = append(ids, j)
+		}
+	}
+	if len(ids) == 0 {
+		return nil
+	}
+	for {
+		cmd := exec.CommandContext(ctx, "squeue", "-h", "-o", "%i", "-j", strings.Join(ids, ","))
+		cmd.Env = s.Env
+		var stderr bytes.Buffer
+		cmd.Stderr = &stderr
+		out, err := cmd.Output()
+		switch {
+		case err == nil && strings.TrimSpace(string(out)) == "":
+			return nil
+		case err != nil && strings.Contains(stderr.String(), "Invalid job id"):
+			// squeue says so once the jobs have left the queue.
+			return nil
+		case err != nil && !isExit(err) && ctx.Err() == nil:
+			return fmt.Errorf("slurm: running squeue: %w", err)
+		}
+		select {
+		case <-ctx.Done():
+			return fmt.Errorf("slurm: waiting for jobs %s: %w", strings.Join(ids, ","), ctx.Err())
+		case <-time.After(interval):
+		}
+	}
+}
+
+func isExit(err error) bool {
+	var ee *exec.ExitError
+	return errors.As(err, &ee)
+}

@@ -1,0 +1,201 @@
+package slurm
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// Expected values are by construction (written by hand from the inputs).
+
+func TestManifestRoundTrip(t *testing.T) {
+	tasks := []Task{
+		{"oak", 1, 2, "/scratch/b/oak/shard-1"},
+		{"oak", 2, 2, "/scratch/b/oak/shard-2"},
+		{"lynx pardinus", 1, 1, "/scratch/b/lynx pardinus"},
+	}
+	var b bytes.Buffer
+	if err := WriteManifest(&b, tasks); err != nil {
+		t.Fatal(err)
+	}
+	want := "study\tshard\tout\noak\t1/2\t/scratch/b/oak/shard-1\noak\t2/2\t/scratch/b/oak/shard-2\nlynx pardinus\t1/1\t/scratch/b/lynx pardinus\n"
+	if b.String() != want {
+		t.Fatalf("manifest:\n%s\nwant:\n%s", b.String(), want)
+	}
+	back, err := ReadManifest(&b, "m.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(back, tasks) {
+		t.Fatalf("round trip: %+v", back)
+	}
+}
+
+func TestManifestRefuses(t *testing.T) {
+	cases := map[string]struct{ text, words string }{
+		"empty":         {"", "is empty"},
+		"header":        {"id\tshard\tout\n", "line 1: header"},
+		"fields":        {"study\tshard\tout\noak\t1/1\n", "m.tsv line 2: 2 fields"},
+		"shard form":    {"study\tshard\tout\noak\t1of2\t/x\n", `line 2: shard "1of2"`},
+		"shard range":   {"study\tshard\tout\noak\t3/2\t/x\n", "shard 3/2"},
+		"shard zero":    {"study\tshard\tout\noak\t0/2\t/x\n", "shard 0/2"},
+		"plus sign":     {"study\tshard\tout\noak\t+1/2\t/x\n", `shard "+1/2"`},
+		"relative out":  {"study\tshard\tout\noak\t1/1\tout/oak\n", "not absolute"},
+		"empty study":   {"study\tshard\tout\n\t1/1\t/x\n", "study id"},
+		"line 3 is bad": {"study\tshard\tout\noak\t1/1\t/x\nfir\t1/1\n", "line 3"},
+	}
+	for name, c := range cases {
+		_, err := ReadManifest(strings.NewReader(c.text), "m.tsv")
+		if !errors.Is(err, ErrManifest) || !strings.Contains(err.Error(), c.words) {
+			t.Errorf("%s: got %v, want ErrManifest with %q", name, err, c.words)
+		}
+	}
+	if err := WriteManifest(&bytes.Buffer{}, []Task{{"a\tb", 1, 1, "/x"}}); !errors.Is(err, ErrManifest) {
+		t.Errorf("tab in id: %v", err)
+	}
+}
+
+func TestArraySpec(t *testing.T) {
+	cases := []struct {
+		ids  []int
+		max  int
+		want string
+	}{
+		{nil, 0, ""},
+		{[]int{4}, 0, "4"},
+		{[]int{1, 2, 3, 5, 7, 8}, 0, "1-3,5,7-8"},
+		{[]int{1, 2, 3, 4}, 2, "1-4%2"},
+		{[]int{2, 4, 6}, 0, "2,4,6"},
+	}
+	for _, c := range cases {
+		if got := ArraySpec(c.ids, c.max); got != c.want {
+			t.Errorf("ArraySpec(%v, %d) = %q, want %q", c.ids, c.max, got, c.want)
+		}
+	}
+}
+
+func TestMemoryMB(t *testing.T) {
+	// estimate + estimate/4 + 256 MiB, rounded up to whole MiB.
+	cases := map[int64]int{0: 256, -5: 256, 1: 257, 4 << 20: 261, 1 << 30: 1280 + 256}
+	for in, want := range cases {
+		if got := MemoryMB(in); got != want {
+			t.Errorf("MemoryMB(%d) = %d, want %d", in, got, want)
+		}
+	}
+}
+
+func testPlan(dir string, n int, cmd string) *Plan {
+	p := &Plan{Name: "t", Dir: dir, TaskCommand: cmd, MemoryMB: 100, CPUs: 1,
+		MergeCommand: "true"}
+	for i := range n {
+		p.Tasks = append(p.Tasks, Task{Study: "s" + strconv.Itoa(i/2), Shard: i%2 + 1, Shards: 2,
+			Out: filepath.Join(dir, "out", "s"+strconv.Itoa(i/2), "shard-"+strconv.Itoa(i%2+1))})
+	}
+	return p
+}
+
+func TestPlanRefuses(t *testing.T) {
+	dir := t.TempDir()
+	cases := map[string]func(p *Plan){
+		"name":         func(p *Plan) { p.Name = "a b" },
+		"relative dir": func(p *Plan) { p.Dir = "jobs" },
+		"no tasks":     func(p *Plan) { p.Tasks = nil },
+		"no command":   func(p *Plan) { p.TaskCommand = " " },
+		"memory":       func(p *Plan) { p.MemoryMB = 0 },
+		"cpus":         func(p *Plan) { p.CPUs = 0 },
+		"time":         func(p *Plan) { p.TimeLimit = "2h; rm" },
+		"partition":    func(p *Plan) { p.Partition = "a;b" },
+		"same out":     func(p *Plan) { p.Tasks[1].Out = p.Tasks[0].Out + "/" },
+		"bad shard":    func(p *Plan) { p.Tasks[0].Shard = 3 },
+	}
+	for name, edit := range cases {
+		p := testPlan(dir, 2, "true")
+		edit(p)
+		if _, err := p.Write(); !errors.Is(err, ErrPlan) {
+			t.Errorf("%s: got %v, want ErrPlan", name, err)
+		}
+	}
+}
+
+// TestArrayScriptLocally runs the written array script with bash (no
+// scheduler), as SLURM would run each array task: the task's command sees
+// its study, shard and folder; the marker is written only after success;
+// a finished task is skipped; a failed task leaves no marker.
+func TestArrayScriptLocally(t *testing.T) {
+	dir := t.TempDir()
+	cmd := `echo "$AREASWEEP_STUDY $AREASWEEP_SHARD/$AREASWEEP_SHARDS" >"$AREASWEEP_OUT/result.txt"
+echo run >>"$AREASWEEP_OUT/../runs-$AREASWEEP_SHARD"
+[ "$AREASWEEP_STUDY" != s1 ] || [ "$AREASWEEP_SHARD" != 2 ] || [ ! -e "` + dir + `/fail" ] || exit 7`
+	p := testPlan(dir, 4, cmd)
+	f, err := p.Write()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "fail"), nil, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	run := func(k int) (int, string) {
+		c := exec.Command("bash", f.Array)
+		c.Env = append(os.Environ(), "SLURM_ARRAY_TASK_ID="+strconv.Itoa(k))
+		out, err := c.CombinedOutput()
+		if ee, ok := err.(*exec.ExitError); ok {
+			return ee.ExitCode(), string(out)
+		} else if err != nil {
+			t.Fatal(err)
+		}
+		return 0, string(out)
+	}
+	for k := 1; k <= 4; k++ {
+		code, out := run(k)
+		if (k == 4) != (code == 7) {
+			t.Fatalf("task %d exit %d:\n%s", k, code, out)
+		}
+	}
+	if got := p.Pending(); !reflect.DeepEqual(got, []int{4}) {
+		t.Fatalf("pending after the first round: %v, want [4]", got)
+	}
+	for k, tk := range p.Tasks {
+		b, err := os.ReadFile(filepath.Join(tk.Out, "result.txt"))
+		want := tk.Study + " " + strconv.Itoa(tk.Shard) + "/2\n"
+		if err != nil || string(b) != want {
+			t.Fatalf("task %d result %q, %v; want %q", k+1, b, err, want)
+		}
+	}
+	os.Remove(filepath.Join(dir, "fail"))
+	for k := 1; k <= 4; k++ {
+		code, out := run(k)
+		if code != 0 || (k < 4) != strings.Contains(out, "already finished, skipped") {
+			t.Fatalf("second round, task %d exit %d:\n%s", k, code, out)
+		}
+	}
+	if got := p.Pending(); len(got) != 0 {
+		t.Fatalf("pending after the second round: %v", got)
+	}
+	// Each task ran once, except the failed one, which ran twice.
+	for _, s := range []string{"s0", "s1"} {
+		for _, sh := range []string{"1", "2"} {
+			b, _ := os.ReadFile(filepath.Join(dir, "out", s, "runs-"+sh))
+			want := 1
+			if s == "s1" && sh == "2" {
+				want = 2
+			}
+			if n := strings.Count(string(b), "run\n"); n != want {
+				t.Errorf("%s shard %s ran %d times, want %d", s, sh, n, want)
+			}
+		}
+	}
+	// No temporary marker is left behind.
+	left, _ := filepath.Glob(filepath.Join(dir, "out", "*", "*", "."+MarkerName+".*"))
+	if len(left) > 0 {
+		t.Errorf("temporary markers left: %v", left)
+	}
+	if code, out := run(9); code != 2 || !strings.Contains(out, "no line 9") {
+		t.Errorf("task 9 of 4: exit %d, %s", code, out)
+	}
+}

@@ -1,0 +1,260 @@
+package metrics
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"reflect"
+	"testing"
+)
+
+// Expected results here are by construction: shard sets are built from
+// ShardBlocks and then broken one way at a time.
+
+func hexOf(s string) string { return fmt.Sprintf("%x", sha256.Sum256([]byte(s))) }
+
+// shardSet returns the n headers of one run over total blocks.
+func shardSet(n, total int) []ShardHeader {
+	hs := make([]ShardHeader, n)
+	for i := range hs {
+		hs[i] = ShardHeader{
+			Format:      PartialFormatVersion,
+			Tool:        "v1.2.3",
+			Inputs:      []InputChecksum{{"model:gbm", hexOf("gbm")}, {"occurrences", hexOf("occ")}},
+			Settings:    hexOf("settings"),
+			Seed:        42,
+			Shard:       i + 1,
+			Shards:      n,
+			TotalBlocks: total,
+			Blocks:      ShardBlocks(i+1, n, total),
+			Source:      fmt.Sprintf("part-%d.bin", i+1),
+		}
+	}
+	return hs
+}
+
+func TestShardBlocksCover(t *testing.T) {
+	for _, total := range []int{0, 1, 5, 6, 7, 100, 1001} {
+		for _, n := range []int{1, 2, 3, 7, 13} {
+			if err := CheckShardSet(shardSet(n, total)); err != nil {
+				t.Errorf("total=%d n=%d: %v", total, n, err)
+			}
+		}
+	}
+}
+
+func TestCheckShardSetRefuses(t *testing.T) {
+	cases := []struct {
+		name  string
+		edit  func([]ShardHeader) []ShardHeader
+		want  error
+		words string // a piece of the message
+	}{
+		{"none", func([]ShardHeader) []ShardHeader { return nil }, ErrNoShards, "give every partial file"},
+		{"other seed", func(h []ShardHeader) []ShardHeader { h[2].Seed = 43; return h }, ErrShardMismatch, "seed (42 vs 43)"},
+		{"other settings", func(h []ShardHeader) []ShardHeader { h[1].Settings = hexOf("x"); return h }, ErrShardMismatch, "part-2.bin (shard 2/3) differ in settings"},
+		{"other input", func(h []ShardHeader) []ShardHeader {
+			h[1].Inputs = []InputChecksum{{"model:gbm", hexOf("gbm2")}, {"occurrences", hexOf("occ")}}
+			return h
+		}, ErrShardMismatch, `"model:gbm" has another checksum`},
+		{"extra input", func(h []ShardHeader) []ShardHeader {
+			h[1].Inputs = append(h[1].Inputs[:2:2], InputChecksum{"region", hexOf("r")})
+			return h
+		}, ErrShardMismatch, `extra input "region"`},
+		{"other tool", func(h []ShardHeader) []ShardHeader { h[1].Tool = "v1.2.4"; return h }, ErrShardMismatch, "areasweep version"},
+		{"other N", func(h []ShardHeader) []ShardHeader { return append(h[:2], shardSet(4, 10)[2]) }, ErrShardMismatch, "shard count (3 vs 4)"},
+		{"other blocks", func(h []ShardHeader) []ShardHeader { return append(h[:2], shardSet(3, 11)[2]) }, ErrShardMismatch, "raster block count"},
+		{"duplicate", func(h []ShardHeader) []ShardHeader { return append(h, h[1]) }, ErrShardDuplicate, "both shard 2"},
+		{"missing", func(h []ShardHeader) []ShardHeader { return h[1:2] }, ErrShardMissing, "shard(s) 1, 3 of 3"},
+		{"overlap", func(h []ShardHeader) []ShardHeader { h[1].Blocks[0].First--; return h }, ErrShardBlocks, "overlap"},
+		{"gap", func(h []ShardHeader) []ShardHeader { h[1].Blocks[0].End--; return h }, ErrShardBlocks, "gap"},
+		{"tail", func(h []ShardHeader) []ShardHeader { h[2].Blocks[0].End--; return h }, ErrShardBlocks, "blocks 9 to 9 are in no shard"},
+		{"shard out of range", func(h []ShardHeader) []ShardHeader { h[0].Shard = 4; return h }, ErrShardHeader, "shard 4/3"},
+		{"bad checksum text", func(h []ShardHeader) []ShardHeader { h[0].Settings = "abc"; return h }, ErrShardHeader, "settings hash"},
+		{"other format", func(h []ShardHeader) []ShardHeader { h[0].Format = 2; return h }, ErrPartialFormat, "format 2"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			err := CheckShardSet(c.edit(shardSet(3, 10)))
+			if !errors.Is(err, c.want) {
+				t.Fatalf("got %v, want %v", err, c.want)
+			}
+			var se *ShardError
+			if !errors.As(err, &se) {
+				t.Fatalf("not a *ShardError: %v", err)
+			}
+			if !bytes.Contains([]byte(err.Error()), []byte(c.words)) {
+				t.Fatalf("message %q lacks %q", err, c.words)
+			}
+		})
+	}
+	// Order does not matter.
+	hs := shardSet(7, 50)
+	rand.New(rand.NewPCG(1, 2)).Shuffle(len(hs), func(i, j int) { hs[i], hs[j] = hs[j], hs[i] })
+	if err := CheckShardSet(hs); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestPartialFileShards writes one partial file per shard (layout plus
+// accumulators of its cells), reads them back, checks the set and merges:
+// the merged accumulators encode exactly like a single pass's.
+func TestPartialFileShards(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 4))
+	l, lv := randomLayout(t, rng)
+	const blocks, extents = 23, 3
+	// cells per block, with a per-extent membership.
+	type cell struct {
+		v   float64
+		w   int64
+		ext int
+	}
+	byBlock := make([][]cell, blocks)
+	single := []*Accumulator{l.NewAccumulator(), l.NewAccumulator(), l.NewAccumulator()}
+	for b := range byBlock {
+		vals, ws := randomCells(rng, lv, 40)
+		for i := range vals {
+			c := cell{vals[i], ws[i], rng.IntN(extents)}
+			byBlock[b] = append(byBlock[b], c)
+			single[c.ext].Add(c.v, c.w)
+		}
+	}
+	for _, n := range []int{1, 2, 3, 7} {
+		var files [][]byte
+		for _, h := range shardSet(n, blocks) {
+			accs := []*Accumulator{l.NewAccumulator(), l.NewAccumulator(), l.NewAccumulator()}
+			for _, r := range h.Blocks {
+				for b := r.First; b < r.End; b++ {
+					for _, c := range byBlock[b] {
+						accs[c.ext].Add(c.v, c.w)
+					}
+				}
+			}
+			p := &PartialFile{Header: h, Sections: []PartialSection{{"layout", EncodeLayout(l)}}}
+			for k, a := range accs {
+				p.Sections = append(p.Sections, PartialSection{fmt.Sprintf("extent/%d", k), EncodeAccumulator(a)})
+			}
+			data, err := EncodePartial(p)
+			if err != nil {
+				t.Fatal(err)
+			}
+			files = append(files, data)
+		}
+		rng.Shuffle(len(files), func(i, j int) { files[i], files[j] = files[j], files[i] })
+		var parts []*PartialFile
+		var headers []ShardHeader
+		for i, f := range files {
+			p, err := DecodePartial(f, fmt.Sprintf("f%d", i))
+			if err != nil {
+				t.Fatal(err)
+			}
+			parts = append(parts, p)
+			headers = append(headers, p.Header)
+		}
+		if err := CheckShardSet(headers); err != nil {
+			t.Fatalf("N=%d: %v", n, err)
+		}
+		ld, _ := parts[0].Section("layout")
+		lm, err := DecodeLayout(ld)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for k := range extents {
+			m := lm.NewAccumulator()
+			for _, p := range parts {
+				d, ok := p.Section(fmt.Sprintf("extent/%d", k))
+				if !ok {
+					t.Fatal("section missing")
+				}
+				a, err := DecodeAccumulator(d, lm)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if err := m.Merge(a); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if !bytes.Equal(EncodeAccumulator(m), EncodeAccumulator(single[k])) {
+				t.Fatalf("N=%d extent %d: merged shards differ from the single pass", n, k)
+			}
+		}
+	}
+}
+
+func TestDecodePartialRefuses(t *testing.T) {
+	h := shardSet(2, 10)[0]
+	p := &PartialFile{Header: h, Sections: []PartialSection{{"a", []byte("xyz")}, {"b", nil}}}
+	good, err := EncodePartial(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, err := DecodePartial(good, "part-1.bin")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(back.Header, h) || len(back.Sections) != 2 || string(back.Sections[0].Data) != "xyz" || back.Sections[1].Name != "b" {
+		t.Fatalf("round trip changed the file: %+v", back)
+	}
+	for n := range len(good) {
+		if _, err := DecodePartial(good[:n], "f"); !errors.Is(err, ErrPartialFormat) {
+			t.Fatalf("truncated to %d: %v", n, err)
+		}
+	}
+	for i := range len(good) {
+		b := bytes.Clone(good)
+		b[i] ^= 0x40
+		if _, err := DecodePartial(b, "f"); err == nil {
+			t.Fatalf("byte %d changed: accepted", i)
+		}
+	}
+	v2 := bytes.Clone(good)
+	v2[4] = 2
+	if _, err := DecodePartial(reseal(v2), "f"); !errors.Is(err, ErrPartialFormat) || !bytes.Contains([]byte(err.Error()), []byte("format 2")) {
+		t.Fatalf("version 2: %v", err)
+	}
+	if _, err := EncodePartial(&PartialFile{Header: h, Sections: []PartialSection{{"a", nil}, {"a", nil}}}); !errors.Is(err, ErrShardHeader) {
+		t.Fatalf("repeated section: %v", err)
+	}
+	bad := h
+	bad.Shard = 0
+	if _, err := EncodePartial(&PartialFile{Header: bad}); !errors.Is(err, ErrShardHeader) {
+		t.Fatalf("shard 0: %v", err)
+	}
+}
+
+// FuzzDecodePartial: arbitrary bytes, raw and sealed, never panic; what is
+// accepted has a valid header and encodes back to the same bytes when its
+// header JSON is canonical.
+func FuzzDecodePartial(f *testing.F) {
+	h := shardSet(3, 10)[1]
+	good, err := EncodePartial(&PartialFile{Header: h, Sections: []PartialSection{{"layout", []byte{1, 2}}}})
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(good)
+	f.Add(good[6 : len(good)-sha256.Size])
+	f.Fuzz(func(t *testing.T, data []byte) {
+		sealed := append([]byte(partialMagic), 1, 0)
+		sealed = append(sealed, data...)
+		sum := sha256.Sum256(sealed)
+		sealed = append(sealed, sum[:]...)
+		for _, in := range [][]byte{data, sealed} {
+			p, err := DecodePartial(in, "fuzz")
+			if err != nil {
+				var se *ShardError
+				if !errors.As(err, &se) {
+					t.Fatalf("not a *ShardError: %v", err)
+				}
+				continue
+			}
+			if err := p.Header.Validate(); err != nil {
+				t.Fatalf("accepted an invalid header: %v", err)
+			}
+			if _, err := EncodePartial(p); err != nil {
+				t.Fatalf("accepted file does not encode: %v", err)
+			}
+		}
+	})
+}
