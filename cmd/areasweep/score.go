@@ -131,7 +131,11 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 		}
 		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
-	s.logf("%s: read once, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
+	how := "read once"
+	if m.NullKind == report.NullDistance {
+		how = "computed cell by cell (no file read)"
+	}
+	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
 	if stats.Area > 0 && stats.Min == stats.Max {
 		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
 	}
