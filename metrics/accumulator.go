@@ -74,6 +74,9 @@ func (a *Accumulator) AddLocated(bin, hist int, v float64, w int64) {
 	h := &a.hist[hist]
 	h.area += w
 	h.n++
+	if v == 0 {
+		v = 0 // -0 and +0 are one value: Min and Max report +0 whatever the order
+	}
 	if v < a.min {
 		a.min = v
 	}

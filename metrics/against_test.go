@@ -75,3 +75,38 @@ func TestAUCAgainst(t *testing.T) {
 		t.Error("an empty background must not be ok")
 	}
 }
+
+// TestSignedZeroOrder checks that -0 and +0 added in either order, or
+// merged from two accumulators in either order, give the same Min and Max
+// bits (IEEE 754: -0 == +0, so a comparison alone keeps whichever came
+// first; the accumulator stores +0).
+func TestSignedZeroOrder(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	lay, err := NewLayout([]float64{0}, -1, 1, 16)
+	if err != nil {
+		t.Fatal(err)
+	}
+	one := func(vals ...float64) *Accumulator {
+		a := lay.NewAccumulator()
+		for _, v := range vals {
+			a.Add(v, 1)
+		}
+		return a
+	}
+	for _, a := range []*Accumulator{one(negZero, 0), one(0, negZero), one(negZero)} {
+		if math.Signbit(a.Min()) || math.Signbit(a.Max()) {
+			t.Errorf("Min %v Max %v: want +0", a.Min(), a.Max())
+		}
+	}
+	x, y := one(negZero), one(0)
+	if err := x.Merge(y); err != nil {
+		t.Fatal(err)
+	}
+	y2, x2 := one(0), one(negZero)
+	if err := y2.Merge(x2); err != nil {
+		t.Fatal(err)
+	}
+	if math.Signbit(x.Min()) != math.Signbit(y2.Min()) || math.Signbit(x.Max()) != math.Signbit(y2.Max()) {
+		t.Errorf("merge order changed the sign of a zero extreme: %v/%v vs %v/%v", x.Min(), x.Max(), y2.Min(), y2.Max())
+	}
+}

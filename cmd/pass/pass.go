@@ -112,7 +112,9 @@ func Open(path string) (*Raster, error) {
 
 // decode turns stored values into model values in place: no-data, NaN and
 // infinite values become NaN, the others are scaled and offset when the
-// band declares a scale or offset.
+// band declares a scale or offset. A zero is always +0: -0 and +0 are one
+// value, and keeping both would let the order in which blocks reach a
+// worker decide which one a minimum or maximum reports.
 func (r *Raster) decode(buf []float64) {
 	plain := r.scale == 1 && r.offset == 0
 	for i, v := range buf {
@@ -121,6 +123,9 @@ func (r *Raster) decode(buf []float64) {
 			buf[i] = math.NaN()
 		case !plain:
 			buf[i] = v*r.scale + r.offset
+		}
+		if buf[i] == 0 {
+			buf[i] = 0 // -0 becomes +0
 		}
 	}
 }
