@@ -31,6 +31,7 @@ func main() {
 		baseMax     = flag.Float64("baseline-max-cells", 30e6, "largest grid on which the per-extent baseline runs")
 		reps        = flag.Int("reps", 1, "repetitions of each measurement (the fastest is kept)")
 		iterations  = flag.Int("iterations", 1000, "partial ROC bootstrap iterations of the run")
+		runFlags    = flag.String("run-flags", "", "extra flags for the measured run, space-separated (e.g. --no-distance-null)")
 	)
 	flag.Parse()
 	cells, err := parseList(*cellsFlag)
@@ -44,7 +45,7 @@ func main() {
 	if _, err := os.Stat(*bin); err != nil {
 		fail("%s not found: build it first (make build)", *bin)
 	}
-	b := &bench{bin: *bin, reps: max(1, *reps), iterations: *iterations, baselineMax: *baseMax}
+	b := &bench{bin: *bin, reps: max(1, *reps), iterations: *iterations, baselineMax: *baseMax, runFlags: strings.Fields(*runFlags)}
 	if err := b.runAll(*dir, cells, extents); err != nil {
 		fail("%v", err)
 	}

@@ -22,6 +22,9 @@ type bench struct {
 	reps        int
 	iterations  int
 	baselineMax float64
+	// runFlags are added to every measured `areasweep run`
+	// (e.g. --no-distance-null).
+	runFlags []string
 }
 
 // row is one measured size: times in seconds, RSS in MiB.
@@ -165,6 +168,7 @@ func (b *bench) fullRun(s *synthetic, n int) (float64, float64, error) {
 		args = append(args, "--model", fmt.Sprintf("m%d=%s", k+1, m))
 	}
 	args = append(args, familyFlags(n)...)
+	args = append(args, b.runFlags...)
 	return b.exec(args)
 }
 
