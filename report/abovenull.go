@@ -190,19 +190,36 @@ func metricPhrase(m MetricInfo) string {
 	return m.Label
 }
 
-// aboveNullHeadline is the headline's sentence on the nulls: AUC only, one
-// clause per model and null.
-func aboveNullHeadline(s *Sensitivity) string {
-	var parts []string
+// baseGap is one model-minus-null AUC summary with its defined difference
+// on the base extent.
+type baseGap struct {
+	an *AboveNull
+	g  *NullGap
+}
+
+// baseAUCGaps returns, in Sensitivity.AboveNull order, every AUC summary
+// whose difference on the base extent is defined: what the headline and
+// the reply to a reviewer say about the nulls.
+func (s *Sensitivity) baseAUCGaps() []baseGap {
+	var out []baseGap
 	for i := range s.AboveNull {
 		an := &s.AboveNull[i]
 		if an.Metric != "auc" {
 			continue
 		}
-		g := an.gap(an.BaseExtent)
-		if g == nil || !g.Defined {
-			continue
+		if g := an.gap(an.BaseExtent); g != nil && g.Defined {
+			out = append(out, baseGap{an, g})
 		}
+	}
+	return out
+}
+
+// aboveNullHeadline is the headline's sentence on the nulls: AUC only, one
+// clause per model and null.
+func aboveNullHeadline(s *Sensitivity) string {
+	var parts []string
+	for _, bg := range s.baseAUCGaps() {
+		an, g := bg.an, bg.g
 		verb := "does not beat"
 		if an.BaseReading == ReadingAbove {
 			verb = "beats"

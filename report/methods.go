@@ -307,26 +307,18 @@ func reviewerText(r *Results) string {
 // test of Sensitivity.AboveNull), or "" when no null was scored.
 func reviewerNullText(s *Sensitivity) string {
 	var beat, not []string
-	null := ""
-	for i := range s.AboveNull {
-		an := &s.AboveNull[i]
-		if an.Metric != "auc" {
-			continue
-		}
-		g := an.gap(an.BaseExtent)
-		if g == nil || !g.Defined {
-			continue
-		}
-		null = an.Null
+	gaps := s.baseAUCGaps()
+	if len(gaps) == 0 {
+		return ""
+	}
+	for _, bg := range gaps {
+		an, g := bg.an, bg.g
 		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s, against %s)", an.Model, signed3(g.Diff), signed3(g.Low), signed3(g.High), an.Null)
 		if an.BaseReading == ReadingAbove {
 			beat = append(beat, part)
 		} else {
 			not = append(not, part)
 		}
-	}
-	if null == "" {
-		return ""
 	}
 	var b strings.Builder
 	b.WriteString("We also scored a null that knows only where the training records are (minus the distance to the nearest one; Hijmans 2012) on the same extents and test records. ")
