@@ -9,7 +9,6 @@ import (
 	_ "github.com/paulmach/orb"
 	_ "github.com/schollz/progressbar/v3"
 	_ "github.com/spf13/cobra"
-	_ "github.com/twpayne/go-geom"
 	_ "go.yaml.in/yaml/v3"
 	_ "gonum.org/v1/gonum/stat"
 	_ "gonum.org/v1/plot"

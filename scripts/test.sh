@@ -9,12 +9,12 @@ cd "$(dirname "$0")/.."
 scripts/setup.sh --test
 
 echo "== golden values regenerated from the reference libraries"
-for r in testdata/*/regen.sh cmd/*/testdata/regen.sh; do
+for r in testdata/*/regen.sh cmd/*/testdata/regen.sh cmd/internal/*/testdata/regen.sh; do
   [ -f "$r" ] || continue
   echo "-- $r"
   bash "$r"
 done
-if ! git diff --exit-code --stat -- testdata cmd/*/testdata; then
+if ! git diff --exit-code --stat -- testdata cmd/*/testdata cmd/internal/*/testdata; then
   echo "golden values changed when regenerated: the reference libraries disagree with the committed files" >&2
   exit 1
 fi

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"areasweep/cmd/pass"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"

@@ -7,7 +7,7 @@ import (
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 
-	"areasweep/cmd/scenario"
+	"areasweep/cmd/internal/scenario"
 )
 
 // DemoOptions runs the built-in demo.

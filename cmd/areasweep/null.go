@@ -6,7 +6,7 @@ import (
 	"sync"
 	"time"
 
-	"areasweep/cmd/pass"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"

@@ -9,7 +9,7 @@ import (
 
 	"github.com/airbusgeo/godal"
 
-	"areasweep/cmd/pass"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"

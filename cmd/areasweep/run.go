@@ -10,7 +10,7 @@ import (
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 
-	"areasweep/cmd/inputs"
+	"areasweep/cmd/internal/inputs"
 	"areasweep/extent"
 	"areasweep/report"
 )

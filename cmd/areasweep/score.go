@@ -8,7 +8,7 @@ import (
 	"sort"
 	"time"
 
-	"areasweep/cmd/pass"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/metrics"

@@ -16,8 +16,8 @@ import (
 
 	"github.com/airbusgeo/godal"
 
-	"areasweep/cmd/inputs"
-	"areasweep/cmd/pass"
+	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
 	"areasweep/metrics"

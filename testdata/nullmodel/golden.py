@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Golden values for the distance-only null model (extent/nullmodel, cmd/pass).
+"""Golden values for the distance-only null model (extent/nullmodel, cmd/internal/pass).
 
 Writes golden.json beside this script: a latitude-longitude grid of 0.5-degree
 cells, random training and test points (numpy, fixed seed), three extents

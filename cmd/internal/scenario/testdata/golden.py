@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Golden values for package areasweep/cmd/scenario, from outside tools.
+"""Golden values for package areasweep/cmd/internal/scenario, from outside tools.
 
 - weighted AUC: sklearn.metrics.roc_auc_score with sample_weight
 - convex hull: scipy.spatial.ConvexHull (Qhull)

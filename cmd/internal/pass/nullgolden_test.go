@@ -20,7 +20,7 @@ import (
 // 1e-9 (our tolerance: the integer rounding of cell areas moves the AUC by
 // about 1e-13).
 func TestNullGoldenAUC(t *testing.T) {
-	data, err := os.ReadFile(filepath.Join("..", "..", "testdata", "nullmodel", "golden.json"))
+	data, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "nullmodel", "golden.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -116,7 +116,7 @@ func (f cellField) Fill(x0, y0, w, h int, _ []uint64, dst []float64) {
 // tolerance, as for the AUC above: integer cell areas), and the model's
 // AUC against scikit-learn.
 func TestNullGoldenModelMinusNull(t *testing.T) {
-	data, err := os.ReadFile(filepath.Join("..", "..", "testdata", "nullmodel", "golden.json"))
+	data, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "nullmodel", "golden.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
