@@ -96,7 +96,7 @@ func (f *Family) WriteGeoPackage(path string) error {
 			return fmt.Errorf("extent: write %s to %s: %w", m.ID, path, err)
 		}
 		fl := ft.Fields()
-		vals := map[string]interface{}{"id": m.ID, "kind": m.Kind, "params": m.Params, "status": m.Status, "cells": m.Cells, "area_km2": m.AreaKm2}
+		vals := map[string]interface{}{"id": m.ID, "kind": m.Kind, "params": m.Params, "status": string(m.Status), "cells": m.Cells, "area_km2": m.AreaKm2}
 		for name, v := range vals {
 			if err := ft.SetFieldValue(fl[name], v); err != nil {
 				ds.Close()

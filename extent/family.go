@@ -33,13 +33,22 @@ const (
 	KindEcoregions   = "ecoregions"
 	KindWholeRaster  = "whole_raster"
 	KindUser         = "user"
-	StatusOK         = "ok"
-	StatusEmpty      = "empty"
-	StatusDuplicate  = "duplicate"
 	chainRegion      = "region"
 	chainPoints      = "points"
 	chainHull        = "hull"
 	chainEcoregions  = "ecoregions"
+)
+
+// MemberStatus says whether a member is used: StatusOK, or StatusEmpty (no
+// valid cell) or StatusDuplicate (the cells of an earlier member). The
+// values are those of report.ExtentStatus, written to results.json.
+type MemberStatus string
+
+// The member statuses.
+const (
+	StatusOK        MemberStatus = "ok"
+	StatusEmpty     MemberStatus = "empty"
+	StatusDuplicate MemberStatus = "duplicate"
 )
 
 // ErrTooManyMembers is returned when the settings ask for more than
@@ -86,7 +95,7 @@ type Member struct {
 	// Chain names the nested chain the member belongs to, if any; members of
 	// a chain are listed in Family.Chains from smallest to largest.
 	Chain       string
-	Status      string
+	Status      MemberStatus
 	DuplicateOf string
 	Cells       int64
 	AreaKm2     float64

@@ -195,7 +195,7 @@ func TestThresholdsGolden(t *testing.T) {
 			}
 			for i, w := range want {
 				got := sc.Thresholds[i]
-				if got.Name != w.Name || got.Value != w.Value || got.Successes != w.Successes || got.N != w.N ||
+				if string(got.Name) != w.Name || got.Value != w.Value || got.Successes != w.Successes || got.N != w.N ||
 					!near(got.Omission, w.Omission, 1e-15) || !near(got.AreaFraction, w.AreaFraction, 1e-15) {
 					t.Errorf("threshold %d = %+v, golden.py %+v", i, got, w)
 				}

@@ -6,11 +6,16 @@ import (
 	"gonum.org/v1/gonum/mathext"
 )
 
-// Threshold names used in Threshold.Name.
+// ThresholdRule names how a threshold is chosen. Its values are the names
+// written to results.json, scores.csv and the omission layers; every
+// package uses these constants rather than the strings.
+type ThresholdRule string
+
+// The threshold rules.
 const (
-	ThresholdMTP   = "minimum_training_presence"
-	ThresholdP10   = "p10_training_presence"
-	ThresholdFixed = "fixed"
+	ThresholdMTP   ThresholdRule = "minimum_training_presence"
+	ThresholdP10   ThresholdRule = "p10_training_presence"
+	ThresholdFixed ThresholdRule = "fixed"
 )
 
 // Threshold is a threshold-based omission test after Anderson, Lew &
@@ -36,7 +41,7 @@ const (
 // models of species' distributions: criteria for selecting optimal models.
 // Ecological Modelling 162:211-232.
 type Threshold struct {
-	Name         string
+	Name         ThresholdRule
 	Value        float64
 	Omission     float64
 	AreaFraction float64
@@ -71,7 +76,7 @@ func P10Index(n int) int { return n / 10 }
 
 func thresholds(c *cumulative, tp *presences, train []float64, trainIdx []int, fixed []float64, fixedIdx []int) []Threshold {
 	var out []Threshold
-	add := func(name string, v float64, j int) {
+	add := func(name ThresholdRule, v float64, j int) {
 		succ := 0
 		for g, jj := range tp.j {
 			if jj >= j {

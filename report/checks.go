@@ -115,7 +115,7 @@ func (a *analysis) independence() Independence {
 	var latN int
 	anyNonZero := false
 	for _, p := range a.r.Points {
-		if p.Status != "scored" {
+		if p.Status != PointScored {
 			continue
 		}
 		latSum += p.Lat
@@ -169,7 +169,7 @@ func (a *analysis) independence() Independence {
 func (a *analysis) omitted() []OmittedPoints {
 	nTest := 0
 	for _, p := range a.r.Points {
-		if p.Role == "test" && p.Status == "scored" {
+		if p.Role == "test" && p.Status == PointScored {
 			nTest++
 		}
 	}

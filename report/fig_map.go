@@ -10,6 +10,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/metrics"
 )
 
 // maxOutlines is the most extent outlines in one map panel: one per
@@ -120,7 +122,7 @@ func mapGroups(r *Results) []mapGroup {
 	var order []string
 	byChain := map[string][]int{}
 	for i, e := range r.Extents {
-		if e.Status != "ok" {
+		if e.Status != ExtentOK {
 			continue
 		}
 		if _, ok := byChain[e.Chain]; !ok {
@@ -155,7 +157,7 @@ func splitGroup(title string, members []int) []mapGroup {
 }
 
 // omittedAt returns the ids of the test points model omits at threshold.
-func omittedAt(r *Results, model, threshold string) map[int]bool {
+func omittedAt(r *Results, model string, threshold metrics.ThresholdRule) map[int]bool {
 	out := map[int]bool{}
 	for _, o := range r.Omissions {
 		if o.Model == model && o.Threshold == threshold {
@@ -182,11 +184,11 @@ type mapLayer struct {
 // mapPoints builds the point layers: training and test points, and the
 // test points the mapped model omits at each training-presence threshold.
 func mapPoints(r *Results, model string) mapMarks {
-	mtp := omittedAt(r, model, "minimum_training_presence")
-	p10 := omittedAt(r, model, "p10_training_presence")
+	mtp := omittedAt(r, model, metrics.ThresholdMTP)
+	p10 := omittedAt(r, model, metrics.ThresholdP10)
 	var tr, te, om1, om10 plotter.XYs
 	for _, pt := range r.Points {
-		if pt.Status != "scored" || pt.Row < 0 || pt.Col < 0 {
+		if pt.Status != PointScored || pt.Row < 0 || pt.Col < 0 {
 			continue
 		}
 		x, y := pointXY(r.Grid, pt)

@@ -9,6 +9,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/metrics"
 )
 
 // metricPoint is one marker of the score-against-area figure.
@@ -61,7 +63,7 @@ func metricPointOf(m MetricInfo, sc *Score, iterations int) (metricPoint, bool) 
 		}
 	case "omission", "area_fraction":
 		for _, t := range sc.Thresholds {
-			if t.Name != m.Threshold || (t.Name == "fixed" && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
+			if t.Name != m.Threshold || (t.Name == metrics.ThresholdFixed && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
 				continue
 			}
 			if m.Kind == "area_fraction" {

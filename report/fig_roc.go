@@ -17,7 +17,7 @@ import (
 func rocExtents(r *Results) []Extent {
 	var es []Extent
 	for _, e := range r.Extents {
-		if e.Status == "ok" {
+		if e.Status == ExtentOK {
 			es = append(es, e)
 		}
 	}

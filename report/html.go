@@ -9,6 +9,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot/vg"
+
+	"areasweep/metrics"
 )
 
 func htmlEscape(s string) string { return html.EscapeString(s) }
@@ -382,7 +384,7 @@ func defNum(v float64, ok bool, dec int) cell {
 // ruleName spells out a threshold rule: "minimum training presence",
 // "10th percentile training presence" or "fixed cut 0.5".
 func ruleName(t Threshold) string {
-	if t.Name == "fixed" {
+	if t.Name == metrics.ThresholdFixed {
 		return "fixed cut " + fmtG(t.Value)
 	}
 	return thresholdLabel(t.Name)
@@ -481,7 +483,7 @@ func writeExtentTables(p *page, r *Results) {
 	s := r.Sensitivity
 	var rows [][]cell
 	for _, e := range r.Extents {
-		status := e.Status
+		status := string(e.Status)
 		if e.DuplicateOf != "" {
 			status += " of " + e.DuplicateOf
 		}
@@ -493,7 +495,7 @@ func writeExtentTables(p *page, r *Results) {
 	if len(s.SkippedExtents) > 0 {
 		p.s("<h3>Left out of the analysis</h3><ul>")
 		for _, e := range s.SkippedExtents {
-			p.f("<li><b>%s</b> (%s): %s</li>", htmlEscape(e.ID), htmlEscape(e.Status), htmlEscape(e.Reason))
+			p.f("<li><b>%s</b> (%s): %s</li>", htmlEscape(e.ID), htmlEscape(string(e.Status)), htmlEscape(e.Reason))
 		}
 		p.s("</ul>")
 	}
@@ -639,7 +641,7 @@ func teachData(r *Results) ([]byte, error) {
 				}
 			}
 			for _, t := range sc.Thresholds {
-				if t.Name == "minimum_training_presence" {
+				if t.Name == metrics.ThresholdMTP {
 					c.Omission, c.AreaFrac, c.ThreshOK = t.Omission, t.AreaFraction, true
 				}
 			}

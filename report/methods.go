@@ -48,7 +48,7 @@ func methodsText(r *Results) string {
 	lo, hi := 0.0, 0.0
 	first := true
 	for _, e := range r.Extents {
-		if e.Status != "ok" {
+		if e.Status != ExtentOK {
 			continue
 		}
 		fam = append(fam, fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2)))

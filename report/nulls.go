@@ -52,7 +52,7 @@ func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
 	ok := map[string]float64{}
 	for _, e := range r.Extents {
-		if e.Status == "ok" && e.AreaKm2 > 0 {
+		if e.Status == ExtentOK && e.AreaKm2 > 0 {
 			ok[e.ID] = e.AreaKm2
 		}
 	}
@@ -109,7 +109,7 @@ func nullSentences(r *Results) string {
 	}
 	okExt := map[string]bool{}
 	for _, e := range r.Extents {
-		okExt[e.ID] = e.Status == "ok"
+		okExt[e.ID] = e.Status == ExtentOK
 	}
 	for _, n := range nulls(r) {
 		lo, hi, k := math.Inf(1), math.Inf(-1), 0
@@ -147,7 +147,7 @@ func nullSentences(r *Results) string {
 	}
 	lo, hi, k := math.Inf(1), math.Inf(-1), 0
 	for _, e := range r.Extents {
-		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == "ok" {
+		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == ExtentOK {
 			lo, hi, k = math.Min(lo, sb.RatioMean), math.Max(hi, sb.RatioMean), k+1
 		}
 	}

@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
+
+	"areasweep/metrics"
 )
 
 // SchemaVersion is the version of the results.json layout written by this
@@ -159,15 +161,42 @@ type Model struct {
 	FloorShare float64 `json:"floor_share"`
 }
 
+// ExtentStatus says whether a member of the extent family is used: ok, or
+// empty (no valid cell), or a duplicate of an earlier member. Its values
+// are the statuses written to results.json and extents.csv; they are the
+// values of extent.Member.Status (extent needs GDAL, report must not, so
+// each package declares them and cmd/areasweep's tests check they agree).
+type ExtentStatus string
+
+// The extent statuses.
+const (
+	ExtentOK        ExtentStatus = "ok"
+	ExtentEmpty     ExtentStatus = "empty"
+	ExtentDuplicate ExtentStatus = "duplicate"
+)
+
+// PointStatus says what became of an occurrence record: scored, or left
+// out because it fell outside the raster, on a no-data cell, or was thinned.
+// Its values are the statuses written to results.json.
+type PointStatus string
+
+// The point statuses.
+const (
+	PointScored        PointStatus = "scored"
+	PointOutsideRaster PointStatus = "outside_raster"
+	PointNoData        PointStatus = "nodata"
+	PointThinned       PointStatus = "thinned"
+)
+
 // Point is one occurrence record after reading, thinning and sampling.
 type Point struct {
-	ID     int     `json:"id"`   // physical line number in the occurrence file (the header is line 1)
-	Role   string  `json:"role"` // "train" or "test"
-	Lon    float64 `json:"lon"`
-	Lat    float64 `json:"lat"`
-	Row    int     `json:"row"`
-	Col    int     `json:"col"`
-	Status string  `json:"status"` // "scored", "outside_raster", "nodata", "thinned"
+	ID     int         `json:"id"`   // physical line number in the occurrence file (the header is line 1)
+	Role   string      `json:"role"` // "train" or "test"
+	Lon    float64     `json:"lon"`
+	Lat    float64     `json:"lat"`
+	Row    int         `json:"row"`
+	Col    int         `json:"col"`
+	Status PointStatus `json:"status"`
 	// NearestTrainKm is, for scored test points, the geodesic distance to
 	// the nearest scored training point; 0 for other points.
 	NearestTrainKm float64 `json:"nearest_train_km"`
@@ -192,10 +221,10 @@ type Extent struct {
 	TrainPoints   int     `json:"train_points"`
 	TestPoints    int     `json:"test_points"`
 	ShareOfRaster float64 `json:"share_of_raster"`
-	// Status is "ok", "empty" or "duplicate"; DuplicateOf names the earlier
-	// member with the same cells.
-	Status      string `json:"status"`
-	DuplicateOf string `json:"duplicate_of,omitempty"`
+	// Status is ExtentOK, ExtentEmpty or ExtentDuplicate; DuplicateOf names
+	// the earlier member with the same cells.
+	Status      ExtentStatus `json:"status"`
+	DuplicateOf string       `json:"duplicate_of,omitempty"`
 	// Chain names the nested chain this member belongs to (e.g. "region"),
 	// ordered by area; empty when the member is in no chain.
 	Chain string `json:"chain,omitempty"`
@@ -314,13 +343,13 @@ type PartialROC struct {
 
 // Threshold is a threshold-based omission test.
 type Threshold struct {
-	Name         string  `json:"name"` // "minimum_training_presence", "p10_training_presence", "fixed"
-	Value        float64 `json:"value"`
-	Omission     float64 `json:"omission"`
-	AreaFraction float64 `json:"area_fraction"`
-	Successes    int     `json:"successes"`
-	N            int     `json:"n"`
-	PBinomial    float64 `json:"p_binomial"`
+	Name         metrics.ThresholdRule `json:"name"`
+	Value        float64               `json:"value"`
+	Omission     float64               `json:"omission"`
+	AreaFraction float64               `json:"area_fraction"`
+	Successes    int                   `json:"successes"`
+	N            int                   `json:"n"`
+	PBinomial    float64               `json:"p_binomial"`
 }
 
 // Boyce is the continuous Boyce index and its predicted/expected curve.
@@ -355,10 +384,10 @@ type Ring struct {
 // depend only on the model and training points, so the list does not
 // depend on the extent.
 type Omission struct {
-	Model     string  `json:"model"`
-	Threshold string  `json:"threshold"`
-	Value     float64 `json:"value"`
-	Omitted   []int   `json:"omitted_point_ids"`
+	Model     string                `json:"model"`
+	Threshold metrics.ThresholdRule `json:"threshold"`
+	Value     float64               `json:"value"`
+	Omitted   []int                 `json:"omitted_point_ids"`
 }
 
 // Curve is a ROC curve on the area axis for one model and extent, thinned to
@@ -434,11 +463,11 @@ func MetricKeyPartialROC(e float64) string { return "partial_roc_e" + fmtG(e) }
 
 // MetricKeyOmission returns the MetricInfo key of the omission rate at a
 // named threshold; value distinguishes "fixed" thresholds.
-func MetricKeyOmission(name string, value float64) string {
-	if name == "fixed" {
+func MetricKeyOmission(name metrics.ThresholdRule, value float64) string {
+	if name == metrics.ThresholdFixed {
 		return "omission_fixed_" + fmtG(value)
 	}
-	return "omission_" + name
+	return "omission_" + string(name)
 }
 
 // BaseExtent returns the extent differences are taken from: "base" when

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+
+	"areasweep/metrics"
 )
 
 // Cut-offs of the analysis. None of them is a published standard: they are
@@ -102,8 +104,8 @@ type MetricInfo struct {
 	E float64 `json:"e,omitempty"`
 	// Threshold and ThresholdValue identify an omission metric (the value
 	// only for "fixed" thresholds, which can repeat by name).
-	Threshold      string  `json:"threshold,omitempty"`
-	ThresholdValue float64 `json:"threshold_value,omitempty"`
+	Threshold      metrics.ThresholdRule `json:"threshold,omitempty"`
+	ThresholdValue float64               `json:"threshold_value,omitempty"`
 	// HigherIsBetter orders models in rankings. Omission and area fraction
 	// at the minimum training presence rank lower values first (the latter
 	// is our choice: at a threshold that keeps every training point, a
@@ -116,10 +118,10 @@ type MetricInfo struct {
 
 // SkippedExtent is an extent left out of the analysis.
 type SkippedExtent struct {
-	ID          string `json:"id"`
-	Status      string `json:"status"`
-	DuplicateOf string `json:"duplicate_of,omitempty"`
-	Reason      string `json:"reason"`
+	ID          string       `json:"id"`
+	Status      ExtentStatus `json:"status"`
+	DuplicateOf string       `json:"duplicate_of,omitempty"`
+	Reason      string       `json:"reason"`
 }
 
 // UnscoredScore is a model that could not be scored on a usable extent.
@@ -422,13 +424,13 @@ type Independence struct {
 
 // OmittedPoints lists the test points omitted at one threshold of a model.
 type OmittedPoints struct {
-	Model      string  `json:"model"`
-	Threshold  string  `json:"threshold"`
-	Value      float64 `json:"value"`
-	Count      int     `json:"count"`
-	TestPoints int     `json:"test_points"`
-	Share      float64 `json:"share"`
-	IDs        []int   `json:"ids"`
+	Model      string                `json:"model"`
+	Threshold  metrics.ThresholdRule `json:"threshold"`
+	Value      float64               `json:"value"`
+	Count      int                   `json:"count"`
+	TestPoints int                   `json:"test_points"`
+	Share      float64               `json:"share"`
+	IDs        []int                 `json:"ids"`
 }
 
 // Analyze computes the sensitivity analysis from r's scores and stores it
@@ -531,7 +533,7 @@ func newAnalysis(r *Results) *analysis {
 	allExt := map[string]bool{}
 	for i, e := range r.Extents {
 		allExt[e.ID] = true
-		if e.Status == "ok" {
+		if e.Status == ExtentOK {
 			a.extIndex[e.ID] = i
 			a.extents = append(a.extents, e)
 		}
@@ -578,15 +580,15 @@ func (a *analysis) extentUse() ([]string, []SkippedExtent, []UnscoredScore) {
 	uns := []UnscoredScore{}
 	for _, e := range a.r.Extents {
 		switch e.Status {
-		case "ok":
-		case "empty":
+		case ExtentOK:
+		case ExtentEmpty:
 			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "the extent has no valid cells"})
 			continue
-		case "duplicate":
+		case ExtentDuplicate:
 			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, DuplicateOf: e.DuplicateOf, Reason: "same cells as " + e.DuplicateOf})
 			continue
 		default:
-			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "status " + strconv.Quote(e.Status)})
+			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "status " + strconv.Quote(string(e.Status))})
 			continue
 		}
 		any := false

@@ -425,7 +425,7 @@ func TestChecksAgainstGolden(t *testing.T) {
 	}
 	for i, w := range g.Omitted {
 		o := s.OmittedPoints[i]
-		if o.Model != w.Model || o.Threshold != w.Threshold || o.Count != w.Count || !reflect.DeepEqual(o.IDs, nonNil(w.IDs)) {
+		if o.Model != w.Model || string(o.Threshold) != w.Threshold || o.Count != w.Count || !reflect.DeepEqual(o.IDs, nonNil(w.IDs)) {
 			t.Errorf("omitted %s/%s: %d %v, golden %d %v", o.Model, o.Threshold, o.Count, o.IDs, w.Count, w.IDs)
 		}
 		near(t, "omitted share", o.Share, w.Share, 1e-12)

@@ -4,13 +4,15 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"areasweep/metrics"
 )
 
 // thresholdLabels gives readable names for the run's threshold names.
-var thresholdLabels = map[string]string{
-	"minimum_training_presence": "minimum training presence",
-	"p10_training_presence":     "10th percentile training presence",
-	"fixed":                     "fixed threshold",
+var thresholdLabels = map[metrics.ThresholdRule]string{
+	metrics.ThresholdMTP:   "minimum training presence",
+	metrics.ThresholdP10:   "10th percentile training presence",
+	metrics.ThresholdFixed: "fixed threshold",
 }
 
 func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
@@ -50,11 +52,11 @@ func buildMetrics(r *Results) []MetricInfo {
 			key := MetricKeyOmission(t.Name, t.Value)
 			label := "omission at " + thresholdLabel(t.Name)
 			mi := MetricInfo{Kind: "omission", Threshold: t.Name, Tolerance: st.ToleranceOmission}
-			if t.Name == "fixed" {
+			if t.Name == metrics.ThresholdFixed {
 				label += " " + fmtG(t.Value)
 				mi.ThresholdValue = t.Value
 			}
-			if t.Name == "minimum_training_presence" {
+			if t.Name == metrics.ThresholdMTP {
 				hasMTP = true
 			}
 			if seenT[key] {
@@ -67,7 +69,7 @@ func buildMetrics(r *Results) []MetricInfo {
 	}
 	if hasMTP {
 		ms = append(ms, MetricInfo{Key: "area_fraction_mtp", Label: "predicted area at minimum training presence",
-			Kind: "area_fraction", Threshold: "minimum_training_presence", Tolerance: st.ToleranceOmission})
+			Kind: "area_fraction", Threshold: metrics.ThresholdMTP, Tolerance: st.ToleranceOmission})
 	}
 	for _, s := range r.Scores {
 		if s.Scored && s.Boyce != nil {
@@ -78,11 +80,11 @@ func buildMetrics(r *Results) []MetricInfo {
 	return ms
 }
 
-func thresholdLabel(name string) string {
+func thresholdLabel(name metrics.ThresholdRule) string {
 	if l, ok := thresholdLabels[name]; ok {
 		return l
 	}
-	return strings.ReplaceAll(name, "_", " ")
+	return strings.ReplaceAll(string(name), "_", " ")
 }
 
 // metricValue extracts metric m from s. ok is false when the score does
@@ -108,7 +110,7 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 		}
 	case "omission", "area_fraction":
 		for _, t := range s.Thresholds {
-			if t.Name != m.Threshold || (t.Name == "fixed" && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
+			if t.Name != m.Threshold || (t.Name == metrics.ThresholdFixed && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
 				continue
 			}
 			if m.Kind == "area_fraction" {

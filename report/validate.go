@@ -112,7 +112,7 @@ func Validate(r *Results) error {
 			v.fail(at+".role", "%q is not train or test", p.Role)
 		}
 		switch p.Status {
-		case "scored", "outside_raster", "nodata", "thinned":
+		case PointScored, PointOutsideRaster, PointNoData, PointThinned:
 		default:
 			v.fail(at+".status", "%q is not scored, outside_raster, nodata or thinned", p.Status)
 		}

@@ -31,7 +31,7 @@ func TestModelAboveNullOfItsCopy(t *testing.T) {
 	res1 := loadResults(t, out1)
 	var lats, lons []float64
 	for _, p := range res1.Points {
-		if p.Status == "scored" && p.Role == "train" {
+		if p.Status == report.PointScored && p.Role == "train" {
 			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
 		}
 	}

@@ -235,7 +235,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 	// Scored test points' values.
 	var test []float64
 	for _, p := range res.Points {
-		if p.Role == "test" && p.Status == "scored" {
+		if p.Role == "test" && p.Status == report.PointScored {
 			test = append(test, s.vals[p.Row*s.w+p.Col])
 		}
 	}
@@ -280,7 +280,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		}
 		var pres []float64
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == "scored" && inside(p.Row, p.Col) {
+			if p.Role == "test" && p.Status == report.PointScored && inside(p.Row, p.Col) {
 				pres = append(pres, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -298,7 +298,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		// same on every extent; omission and area fraction by brute force.
 		mtp := math.Inf(1)
 		for _, p := range res.Points {
-			if p.Role == "train" && p.Status == "scored" {
+			if p.Role == "train" && p.Status == report.PointScored {
 				mtp = math.Min(mtp, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -360,7 +360,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		_, _, insideOuter := bgOf(outer)
 		var pres []float64
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == "scored" && insideOuter(p.Row, p.Col) {
+			if p.Role == "test" && p.Status == report.PointScored && insideOuter(p.Row, p.Col) {
 				pres = append(pres, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -844,7 +844,7 @@ func TestProjectedEqualAreaGrid(t *testing.T) {
 			}
 		}
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == "scored" && bands[k][p.Row*w+p.Col] == 1 {
+			if p.Role == "test" && p.Status == report.PointScored && bands[k][p.Row*w+p.Col] == 1 {
 				pres = append(pres, vals[p.Row*w+p.Col])
 			}
 		}

@@ -94,7 +94,7 @@ func (s *session) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 	t0 := time.Now()
 	dist := make([]float64, len(s.points))
 	for j, p := range s.points {
-		if p.Status == "scored" && p.Role == "test" {
+		if p.Status == report.PointScored && p.Role == "test" {
 			_, dist[j] = ix.Nearest(s.lonlat[j].Lat, s.lonlat[j].Lon, 0)
 		}
 	}
@@ -104,7 +104,7 @@ func (s *session) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 		}
 		var test []float64
 		for j, p := range s.points {
-			if p.Status == "scored" && p.Role == "test" && s.fam.Has(k, s.cell[j]) {
+			if p.Status == report.PointScored && p.Role == "test" && s.fam.Has(k, s.cell[j]) {
 				test = append(test, dist[j])
 			}
 		}

@@ -56,7 +56,7 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	res1 := loadResults(t, out1)
 	var lats, lons []float64
 	for _, p := range res1.Points {
-		if p.Status == "scored" && p.Role == "train" {
+		if p.Status == report.PointScored && p.Role == "train" {
 			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
 		}
 	}
@@ -159,7 +159,7 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 		}
 		var test []float64
 		for _, p := range res.Points {
-			if p.Status == "scored" && p.Role == "test" && bands[k][p.Row*g.Width+p.Col] == 1 {
+			if p.Status == report.PointScored && p.Role == "test" && bands[k][p.Row*g.Width+p.Col] == 1 {
 				d := math.Inf(1)
 				for j := range lats {
 					d = math.Min(d, geodesy.Distance(p.Lat, p.Lon, lats[j], lons[j]))

@@ -14,6 +14,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"areasweep/extent"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
@@ -96,8 +97,8 @@ func scoresCSV(r *report.Results) []byte {
 			row("partial_roc_p_value", e, "", p.PValue)
 		}
 		for _, t := range sc.Thresholds {
-			rule := t.Name
-			if rule == "fixed" {
+			rule := string(t.Name)
+			if t.Name == metrics.ThresholdFixed {
 				rule = "fixed_" + ftoa(t.Value)
 			}
 			row("cut_value", "", rule, t.Value)
@@ -154,7 +155,7 @@ func extentsCSV(ex []report.Extent) []byte {
 	w := csv.NewWriter(&buf)
 	w.Write([]string{"id", "kind", "params", "status", "duplicate_of", "chain", "cells", "area_km2", "share_of_raster", "train_points", "test_points"})
 	for _, e := range ex {
-		w.Write([]string{e.ID, e.Kind, e.Params, e.Status, e.DuplicateOf, e.Chain, strconv.FormatInt(e.Cells, 10), ftoa(e.AreaKm2),
+		w.Write([]string{e.ID, e.Kind, e.Params, string(e.Status), e.DuplicateOf, e.Chain, strconv.FormatInt(e.Cells, 10), ftoa(e.AreaKm2),
 			ftoa(e.ShareOfRaster), strconv.Itoa(e.TrainPoints), strconv.Itoa(e.TestPoints)})
 	}
 	w.Flush()
@@ -167,7 +168,7 @@ func extentsTable(ex []report.Extent) string {
 	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "id\tkind\tcells\tarea km2\tshare\ttrain\ttest\tstatus\t")
 	for _, e := range ex {
-		st := e.Status
+		st := string(e.Status)
 		if e.DuplicateOf != "" {
 			st += " of " + e.DuplicateOf
 		}
@@ -198,8 +199,8 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 	var cols []col
 	opts := []godal.CreateLayerOption{godal.NewFieldDefinition("line", godal.FTInt), godal.NewFieldDefinition("nearest_train_km", godal.FTReal)}
 	for _, o := range r.Omissions {
-		name := "omit_" + o.Model + "_" + o.Threshold
-		if o.Threshold == "fixed" {
+		name := "omit_" + o.Model + "_" + string(o.Threshold)
+		if o.Threshold == metrics.ThresholdFixed {
 			name += "_" + ftoa(o.Value)
 		}
 		c := col{name: name, om: map[int]bool{}}
@@ -215,7 +216,7 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 		return fmt.Errorf("create layer in %s: %w", path, err)
 	}
 	for _, p := range r.Points {
-		if p.Role != "test" || p.Status != "scored" {
+		if p.Role != "test" || p.Status != report.PointScored {
 			continue
 		}
 		geom, err := godal.NewGeometryFromWKT(fmt.Sprintf("POINT (%s %s)", ftoa(p.Lon), ftoa(p.Lat)), wgs)

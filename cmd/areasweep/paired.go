@@ -16,7 +16,7 @@ func (s *session) globalTest() []int {
 	n := 0
 	for j, p := range s.points {
 		g[j] = -1
-		if p.Status == "scored" && p.Role == "test" {
+		if p.Status == report.PointScored && p.Role == "test" {
 			g[j] = n
 			n++
 		}

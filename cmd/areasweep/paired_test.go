@@ -30,7 +30,7 @@ func TestPairedAgainstRawCells(t *testing.T) {
 	}
 	cellOf := map[int]int{}
 	for _, p := range res.Points {
-		if p.Role == "test" && p.Status == "scored" {
+		if p.Role == "test" && p.Status == report.PointScored {
 			cellOf[p.ID] = p.Row*s.w + p.Col
 		}
 	}

@@ -27,7 +27,7 @@ type modelPoints struct {
 func (s *session) split(vals []float64, valid []bool) modelPoints {
 	var mp modelPoints
 	for j, p := range s.points {
-		if p.Status != "scored" || !valid[j] {
+		if p.Status != report.PointScored || !valid[j] {
 			continue
 		}
 		if p.Role == "train" {
@@ -84,7 +84,7 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	var layoutVals []float64
 	var missing []string
 	for k, p := range s.points {
-		if p.Status != "scored" {
+		if p.Status != report.PointScored {
 			continue
 		}
 		if !valid[k] {
@@ -164,7 +164,7 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	presence := func(k int, role string) []float64 {
 		var out []float64
 		for j, p := range s.points {
-			if p.Status == "scored" && p.Role == role && valid[j] && fam.Has(k, s.cell[j]) {
+			if p.Status == report.PointScored && p.Role == role && valid[j] && fam.Has(k, s.cell[j]) {
 				out = append(out, vals[j])
 			}
 		}
@@ -174,7 +174,7 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	gidx := s.globalTest()
 	testIDs := func(k int) (global, ids []int) {
 		for j, p := range s.points {
-			if p.Status == "scored" && p.Role == "test" && valid[j] && fam.Has(k, s.cell[j]) {
+			if p.Status == report.PointScored && p.Role == "test" && valid[j] && fam.Has(k, s.cell[j]) {
 				global, ids = append(global, gidx[j]), append(ids, p.ID)
 			}
 		}
@@ -318,17 +318,17 @@ func (s *session) rings(model string, accs []*metrics.Accumulator, presence func
 func (s *session) omissions(model string, mp modelPoints) {
 	train, test, testIDs := mp.train, mp.test, mp.testIDs
 	type th struct {
-		name string
+		name metrics.ThresholdRule
 		v    float64
 	}
 	var ths []th
 	if len(train) > 0 {
 		sorted := append([]float64(nil), train...)
 		sort.Float64s(sorted)
-		ths = append(ths, th{"minimum_training_presence", sorted[0]}, th{"p10_training_presence", sorted[metrics.P10Index(len(sorted))]})
+		ths = append(ths, th{metrics.ThresholdMTP, sorted[0]}, th{metrics.ThresholdP10, sorted[metrics.P10Index(len(sorted))]})
 	}
 	for _, v := range s.o.Thresholds {
-		ths = append(ths, th{"fixed", v})
+		ths = append(ths, th{metrics.ThresholdFixed, v})
 	}
 	for _, t := range ths {
 		om := report.Omission{Model: model, Threshold: t.name, Value: t.v, Omitted: []int{}}
@@ -384,7 +384,7 @@ func (s *session) finishResults() error {
 		}
 		for i := range s.points {
 			p := &s.points[i]
-			if p.Status == "scored" && p.Role == "test" {
+			if p.Status == report.PointScored && p.Role == "test" {
 				_, d := ix.Nearest(s.lonlat[i].Lat, s.lonlat[i].Lon, 0)
 				p.NearestTrainKm = math.Round(d) / 1000
 			}

@@ -57,7 +57,7 @@ func TestScoresCSV(t *testing.T) {
 			rows++
 		}
 		for _, th := range sc.Thresholds {
-			rule := th.Name
+			rule := string(th.Name)
 			if rule == "fixed" {
 				rule = "fixed_" + ftoa(th.Value)
 			}

@@ -366,14 +366,14 @@ func (s *session) readPoints() error {
 	s.lonlat = make([]extent.LonLat, n)
 	s.cell = make([]int, n)
 	for i, r := range recs {
-		p := report.Point{ID: r.Line, Role: string(r.Role), Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: "scored"}
+		p := report.Point{ID: r.Line, Role: string(r.Role), Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: report.PointScored}
 		s.lonlat[i] = extent.LonLat{Lon: lons[i], Lat: lats[i]}
 		s.cell[i] = -1
 		if col, row, ok := g.CellOf(xs[i], ys[i]); ok {
 			p.Row, p.Col = row, col
 			s.cell[i] = row*g.Width + col
 		} else {
-			p.Status = "outside_raster"
+			p.Status = report.PointOutsideRaster
 		}
 		s.points[i] = p
 	}
@@ -400,13 +400,13 @@ func (s *session) readPoints() error {
 	var outside, nodata []string
 	for i := range s.points {
 		p := &s.points[i]
-		if p.Status == "outside_raster" {
+		if p.Status == report.PointOutsideRaster {
 			outside = append(outside, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
 			s.cell[i] = -1
 			continue
 		}
 		if !pointValid[i] {
-			p.Status = "nodata"
+			p.Status = report.PointNoData
 			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
 			s.cell[i] = -1
 		}
@@ -429,7 +429,7 @@ func (s *session) readPoints() error {
 			}
 			key := [2]int{s.cell[i], roleIndex(p.Role)}
 			if first, dup := seen[key]; dup {
-				p.Status = "thinned"
+				p.Status = report.PointThinned
 				thinned++
 				pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role))
 				s.cell[i] = -1
@@ -445,17 +445,17 @@ func (s *session) readPoints() error {
 	c := &s.res.PointCounts
 	for _, p := range s.points {
 		switch p.Status {
-		case "scored":
+		case report.PointScored:
 			if p.Role == "train" {
 				c.Train++
 			} else {
 				c.Test++
 			}
-		case "thinned":
+		case report.PointThinned:
 			c.Thinned++
-		case "outside_raster":
+		case report.PointOutsideRaster:
 			c.OutsideRaster++
-		case "nodata":
+		case report.PointNoData:
 			c.NoData++
 		}
 	}
@@ -568,7 +568,7 @@ func (s *session) scoredPoints(role string) ([]extent.LonLat, []int, []int) {
 	var ll []extent.LonLat
 	var cells, idx []int
 	for i, p := range s.points {
-		if p.Status == "scored" && p.Role == role {
+		if p.Status == report.PointScored && p.Role == role {
 			ll = append(ll, s.lonlat[i])
 			cells = append(cells, s.cell[i])
 			idx = append(idx, i)
@@ -665,7 +665,7 @@ func (s *session) recordExtents() error {
 		s.res.Extents = append(s.res.Extents, report.Extent{
 			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
 			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
-			Status: m.Status, DuplicateOf: m.DuplicateOf, Chain: m.Chain,
+			Status: report.ExtentStatus(m.Status), DuplicateOf: m.DuplicateOf, Chain: m.Chain,
 		})
 		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
 	}
