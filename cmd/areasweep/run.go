@@ -243,39 +243,26 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 // applyStudy copies every setting of st whose flag was not given.
 func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	set := func(name string) bool { return !f.Changed(name) }
-	if st.Model != nil && set("model") {
-		o.Models = st.Model
-	}
-	if st.Null != nil && set("null") {
-		o.Nulls = st.Null
-	}
-	str := func(name string, dst *string, v *string) {
+	slice := func(name string, dst *[]string, v []string) {
 		if v != nil && set(name) {
-			*dst = *v
+			*dst = v
 		}
 	}
-	str("occurrences", &o.Occurrences, st.Occurrences)
-	str("occurrences-crs", &o.OccurrencesCRS, st.OccurrencesCRS)
-	str("region", &o.Region, st.Region)
-	str("ecoregions", &o.Ecoregions, st.Ecoregions)
-	str("ecoregion-field", &o.EcoregionField, st.EcoregionField)
-	str("out", &o.Out, st.Out)
-	if st.EcoregionMinPoints != nil && set("ecoregion-min-points") {
-		o.EcoregionMinPoints = *st.EcoregionMinPoints
-	}
-	boolean := func(name string, dst *bool, v *bool) {
-		if v != nil && set(name) {
-			*dst = *v
-		}
-	}
-	boolean("ecoregion-clip", &o.EcoregionClip, st.EcoregionClip)
-	boolean("point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
-	boolean("no-thin", &o.NoThin, st.NoThin)
-	boolean("membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
-	boolean("no-distance-null", &o.NoDistanceNull, st.NoDistanceNull)
-	if st.Extra != nil && set("extra") {
-		o.Extra = st.Extra
-	}
+	slice("model", &o.Models, st.Model)
+	slice("null", &o.Nulls, st.Null)
+	slice("extra", &o.Extra, st.Extra)
+	fromStudy(f, "occurrences", &o.Occurrences, st.Occurrences)
+	fromStudy(f, "occurrences-crs", &o.OccurrencesCRS, st.OccurrencesCRS)
+	fromStudy(f, "region", &o.Region, st.Region)
+	fromStudy(f, "ecoregions", &o.Ecoregions, st.Ecoregions)
+	fromStudy(f, "ecoregion-field", &o.EcoregionField, st.EcoregionField)
+	fromStudy(f, "out", &o.Out, st.Out)
+	fromStudy(f, "ecoregion-min-points", &o.EcoregionMinPoints, st.EcoregionMinPoints)
+	fromStudy(f, "ecoregion-clip", &o.EcoregionClip, st.EcoregionClip)
+	fromStudy(f, "point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
+	fromStudy(f, "no-thin", &o.NoThin, st.NoThin)
+	fromStudy(f, "membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
+	fromStudy(f, "no-distance-null", &o.NoDistanceNull, st.NoDistanceNull)
 	list := func(name string, dst *[]float64, v []float64) {
 		if v != nil && set(name) {
 			*dst = v
@@ -286,24 +273,21 @@ func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
 	list("hull-buffers", &o.HullBuffers, st.HullBuffers)
 	list("e", &o.E, st.E)
 	list("thresholds", &o.Thresholds, st.Thresholds)
-	if st.Iterations != nil && set("iterations") {
-		o.Iterations = *st.Iterations
+	fromStudy(f, "iterations", &o.Iterations, st.Iterations)
+	fromStudy(f, "fraction", &o.Fraction, st.Fraction)
+	fromStudy(f, "seed", &o.Seed, st.Seed)
+	fromStudy(f, "tolerance-auc", &o.ToleranceAUC, st.ToleranceAUC)
+	fromStudy(f, "tolerance-partial-roc", &o.TolerancePartialROC, st.TolerancePartialROC)
+	fromStudy(f, "tolerance-omission", &o.ToleranceOmission, st.ToleranceOmission)
+	fromStudy(f, "tolerance-boyce", &o.ToleranceBoyce, st.ToleranceBoyce)
+}
+
+// fromStudy sets *dst to the study file's value v when the file gives one
+// (v != nil) and the flag name was not given on the command line.
+func fromStudy[T any](f *pflag.FlagSet, name string, dst *T, v *T) {
+	if v != nil && !f.Changed(name) {
+		*dst = *v
 	}
-	if st.Fraction != nil && set("fraction") {
-		o.Fraction = *st.Fraction
-	}
-	if st.Seed != nil && set("seed") {
-		o.Seed = *st.Seed
-	}
-	float := func(name string, dst *float64, v *float64) {
-		if v != nil && set(name) {
-			*dst = *v
-		}
-	}
-	float("tolerance-auc", &o.ToleranceAUC, st.ToleranceAUC)
-	float("tolerance-partial-roc", &o.TolerancePartialROC, st.TolerancePartialROC)
-	float("tolerance-omission", &o.ToleranceOmission, st.ToleranceOmission)
-	float("tolerance-boyce", &o.ToleranceBoyce, st.ToleranceBoyce)
 }
 
 // validate checks the settings that need no file access.
