@@ -73,21 +73,7 @@ type BatchError struct {
 
 // Error formats the error as `inputs: FILE line N, study "ID", column "C": message`.
 func (e *BatchError) Error() string {
-	var b strings.Builder
-	b.WriteString("inputs: ")
-	b.WriteString(e.File)
-	if e.Line > 0 {
-		fmt.Fprintf(&b, " line %d", e.Line)
-	}
-	if e.Study != "" {
-		fmt.Fprintf(&b, ", study %q", e.Study)
-	}
-	if e.Column != "" {
-		fmt.Fprintf(&b, ", column %q", e.Column)
-	}
-	b.WriteString(": ")
-	b.WriteString(strings.TrimPrefix(e.Err.Error(), "inputs: "))
-	return b.String()
+	return located(e.File, e.Line, e.Study, "column", e.Column, e.Err)
 }
 
 // Unwrap returns the wrapped error.

@@ -78,24 +78,35 @@ type ParseError struct {
 
 // Error formats the error as "inputs: FILE line N, column "F": message".
 func (e *ParseError) Error() string {
-	var b strings.Builder
-	b.WriteString("inputs: ")
-	b.WriteString(e.File)
-	if e.Line > 0 {
-		fmt.Fprintf(&b, " line %d", e.Line)
-	}
-	if e.Field != "" {
-		fmt.Fprintf(&b, ", column %q", e.Field)
-	}
-	b.WriteString(": ")
-	if e.Err != nil {
-		b.WriteString(strings.TrimPrefix(e.Err.Error(), "inputs: "))
-	}
-	return b.String()
+	return located(e.File, e.Line, "", "column", e.Field, e.Err)
 }
 
 // Unwrap returns the wrapped error, so errors.Is finds the sentinel.
 func (e *ParseError) Unwrap() error { return e.Err }
+
+// located formats the package's structured errors as
+// `inputs: FILE line N, study "ID", WHAT "NAME": message`, leaving out the
+// line when it is 0, the study and the named place when they are empty,
+// and the wrapped error's own "inputs: " prefix.
+func located(file string, line int, study, what, name string, err error) string {
+	var b strings.Builder
+	b.WriteString("inputs: ")
+	b.WriteString(file)
+	if line > 0 {
+		fmt.Fprintf(&b, " line %d", line)
+	}
+	if study != "" {
+		fmt.Fprintf(&b, ", study %q", study)
+	}
+	if name != "" {
+		fmt.Fprintf(&b, ", %s %q", what, name)
+	}
+	b.WriteString(": ")
+	if err != nil {
+		b.WriteString(strings.TrimPrefix(err.Error(), "inputs: "))
+	}
+	return b.String()
+}
 
 // Accepted header spellings, lower case.
 var (

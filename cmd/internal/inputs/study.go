@@ -94,20 +94,7 @@ type StudyError struct {
 
 // Error formats the error as "inputs: FILE line N, key "K": message".
 func (e *StudyError) Error() string {
-	var b strings.Builder
-	b.WriteString("inputs: ")
-	b.WriteString(e.File)
-	if e.Line > 0 {
-		fmt.Fprintf(&b, " line %d", e.Line)
-	}
-	if e.Key != "" {
-		fmt.Fprintf(&b, ", key %q", e.Key)
-	}
-	b.WriteString(": ")
-	if e.Err != nil {
-		b.WriteString(strings.TrimPrefix(e.Err.Error(), "inputs: "))
-	}
-	return b.String()
+	return located(e.File, e.Line, "", "key", e.Key, e.Err)
 }
 
 // Unwrap returns the wrapped error, so errors.Is finds the sentinel.
