@@ -15,9 +15,21 @@ import (
 // writeTestRaster writes a w x h Float32 GeoTIFF on a 0.01-degree grid with
 // a smooth ramp of values and no-data on every 97th cell.
 func writeTestRaster(tb testing.TB, path string, w, h int) {
+	writeGridRaster(tb, path, w, h, false, func(r, c int) float32 {
+		if (r*w+c)%97 == 0 {
+			return -9999
+		}
+		return float32(math.Round(1000*(0.5+0.5*math.Sin(float64(c)/37)*math.Cos(float64(r)/53))) / 1000)
+	}, "TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256")
+}
+
+// writeGridRaster writes a w x h Float32 GeoTIFF (EPSG:4326, 0.01-degree
+// cells from 0 E, 50 N, nodata -9999) with value(r, c) in each cell and the
+// given creation options, row by row, and builds overviews when asked.
+func writeGridRaster(tb testing.TB, path string, w, h int, overviews bool, value func(r, c int) float32, opts ...string) {
 	tb.Helper()
 	extent.Register()
-	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256"))
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption(opts...))
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -29,13 +41,14 @@ func writeTestRaster(tb testing.TB, path string, w, h int) {
 	row := make([]float32, w)
 	for r := 0; r < h; r++ {
 		for c := range row {
-			i := r*w + c
-			row[c] = float32(math.Round(1000*(0.5+0.5*math.Sin(float64(c)/37)*math.Cos(float64(r)/53))) / 1000)
-			if i%97 == 0 {
-				row[c] = -9999
-			}
+			row[c] = value(r, c)
 		}
 		if err := b.Write(0, r, row, w, 1); err != nil {
+			tb.Fatal(err)
+		}
+	}
+	if overviews {
+		if err := ds.BuildOverviews(godal.Levels(2, 4, 8)); err != nil {
 			tb.Fatal(err)
 		}
 	}

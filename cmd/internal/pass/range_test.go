@@ -5,8 +5,6 @@ import (
 	"path/filepath"
 	"testing"
 
-	"github.com/airbusgeo/godal"
-
 	"areasweep/extent"
 	"areasweep/metrics"
 )
@@ -15,43 +13,18 @@ import (
 // extreme cells that a block sample can miss) as a GeoTIFF with the given
 // creation options, and builds overviews when asked.
 func writeLayout(tb testing.TB, path string, w, h int, overviews bool, opts ...string) {
-	tb.Helper()
-	extent.Register()
-	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption(opts...))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	ds.SetGeoTransform([6]float64{0, 0.01, 0, 50, 0, -0.01})
-	sr, _ := godal.NewSpatialRefFromEPSG(4326)
-	ds.SetSpatialRef(sr)
-	b := ds.Bands()[0]
-	b.SetNoData(-9999)
-	row := make([]float32, w)
-	for r := 0; r < h; r++ {
-		for c := range row {
-			v := math.Pow(float64(c)/float64(w), 3) * (0.3 + 0.7*float64(r)/float64(h))
-			row[c] = float32(math.Round(1e4*v) / 1e4)
-			switch {
-			case r == h-3 && c == w-7:
-				row[c] = 5 // a lone high cell
-			case r == 2 && c == 3:
-				row[c] = -2 // a lone low cell
-			case (r*w+c)%89 == 0:
-				row[c] = -9999
-			}
+	writeGridRaster(tb, path, w, h, overviews, func(r, c int) float32 {
+		switch {
+		case r == h-3 && c == w-7:
+			return 5 // a lone high cell
+		case r == 2 && c == 3:
+			return -2 // a lone low cell
+		case (r*w+c)%89 == 0:
+			return -9999
 		}
-		if err := b.Write(0, r, row, w, 1); err != nil {
-			tb.Fatal(err)
-		}
-	}
-	if overviews {
-		if err := ds.BuildOverviews(godal.Levels(2, 4, 8)); err != nil {
-			tb.Fatal(err)
-		}
-	}
-	if err := ds.Close(); err != nil {
-		tb.Fatal(err)
-	}
+		v := math.Pow(float64(c)/float64(w), 3) * (0.3 + 0.7*float64(r)/float64(h))
+		return float32(math.Round(1e4*v) / 1e4)
+	}, opts...)
 }
 
 // TestExactRangeLayouts writes the same pixels tiled, striped and tiled
