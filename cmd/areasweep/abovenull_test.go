@@ -6,10 +6,6 @@ import (
 	"strings"
 	"testing"
 
-	"areasweep/cmd/internal/pass"
-	"areasweep/extent"
-	"areasweep/extent/geodesy"
-	"areasweep/extent/nullmodel"
 	"areasweep/report"
 )
 
@@ -25,27 +21,8 @@ import (
 func TestModelAboveNullOfItsCopy(t *testing.T) {
 	s := newSmallStudy(t)
 	out1 := filepath.Join(s.dir, "out1")
-	if _, se, code := runBin(t, s.args(out1)...); code != 0 {
-		t.Fatalf("exit %d: %s", code, se)
-	}
-	res1 := loadResults(t, out1)
-	var lats, lons []float64
-	for _, p := range res1.Points {
-		if p.Status == report.PointScored && p.Role == "train" {
-			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
-		}
-	}
-	ix, err := geodesy.NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
-	g, err := extent.OpenGrid(s.model)
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, g, vals, _, _ := runWithNullValues(t, s, out1)
 	defer g.Close()
-	vals := make([]float64, g.Cells())
-	nullmodel.New(ix, pass.CellCentres(g)).Fill(0, 0, g.Width, g.Height, nil, vals)
 	copyPath := filepath.Join(s.dir, "copy.tif")
 	writeFloat64Raster(t, copyPath, g, vals)
 	twice := make([]float64, len(vals))

@@ -34,6 +34,35 @@ func writeFloat64Raster(t *testing.T, path string, g *extent.Grid, vals []float6
 	}
 }
 
+// runWithNullValues runs the small study into out, then computes the
+// distance-only null's value on every cell from the run's scored training
+// points (nullmodel.Field, as the run does), and returns the run's results,
+// the grid (to be closed by the caller), the values and the training
+// points' latitudes and longitudes.
+func runWithNullValues(t *testing.T, s *smallStudy, out string) (res *report.Results, g *extent.Grid, vals, lats, lons []float64) {
+	t.Helper()
+	if _, se, code := runBin(t, s.args(out)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	res = loadResults(t, out)
+	for _, p := range res.Points {
+		if p.Status == report.PointScored && p.Role == "train" {
+			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
+		}
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, err = extent.OpenGrid(s.model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vals = make([]float64, g.Cells())
+	nullmodel.New(ix, pass.CellCentres(g)).Fill(0, 0, g.Width, g.Height, nil, vals)
+	return res, g, vals, lats, lons
+}
+
 // TestDistanceNullEqualsItsGeoTIFF is the end-to-end form of the null's
 // defining property: the distance-only null's values, computed here on the
 // study grid from the scored training points and written as a Float64
@@ -50,27 +79,8 @@ func writeFloat64Raster(t *testing.T, path string, g *extent.Grid, vals []float6
 func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	s := newSmallStudy(t)
 	out1 := filepath.Join(s.dir, "out1")
-	if _, se, code := runBin(t, s.args(out1)...); code != 0 {
-		t.Fatalf("exit %d: %s", code, se)
-	}
-	res1 := loadResults(t, out1)
-	var lats, lons []float64
-	for _, p := range res1.Points {
-		if p.Status == report.PointScored && p.Role == "train" {
-			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
-		}
-	}
-	ix, err := geodesy.NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
-	g, err := extent.OpenGrid(s.model)
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, g, vals, lats, lons := runWithNullValues(t, s, out1)
 	defer g.Close()
-	vals := make([]float64, g.Cells())
-	nullmodel.New(ix, pass.CellCentres(g)).Fill(0, 0, g.Width, g.Height, nil, vals)
 	copyPath := filepath.Join(s.dir, "null.tif")
 	writeFloat64Raster(t, copyPath, g, vals)
 
