@@ -132,7 +132,7 @@ func leftovers(dirs ...string) []string {
 				return nil
 			}
 			n := d.Name()
-			if strings.Contains(n, "areasweep-partial") || strings.Contains(n, ".partial-") || strings.HasPrefix(n, holdPrefix) || strings.HasSuffix(n, lockSuffix) {
+			if strings.Contains(n, "areasweep-partial") || strings.Contains(n, ".partial-") || strings.HasPrefix(n, ".areasweep-old-") || strings.HasSuffix(n, ".areasweep-lock") {
 				found = append(found, p)
 			}
 			return nil

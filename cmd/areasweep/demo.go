@@ -7,6 +7,8 @@ import (
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/scenario"
 )
 
@@ -52,14 +54,14 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 // signal, a crash) and arrive in --out/inputs with the results.
 func demoRun(o *DemoOptions) error {
 	if o.Workers < 0 || o.Workers > maxWorkers {
-		return badInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers))
+		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers))
 	}
-	d, err := openOut(o.Out, o.Force, nil)
+	d, err := outdir.Open(o.Out, o.Force, nil)
 	if err != nil {
 		return err
 	}
-	defer d.abort()
-	d.demo = true
+	defer d.Abort()
+	d.Demo = true
 	inDir := filepath.Join(d.Stage, "inputs")
 	files, err := scenario.Write(inDir, o.Seed)
 	if err != nil {
@@ -77,9 +79,9 @@ func demoRun(o *DemoOptions) error {
 	run.Quiet = o.Quiet
 	run.Workers = o.Workers
 	if err := run.resolve(fs); err != nil {
-		return internal(fmt.Errorf("demo: the generated study file is wrong: %w", err))
+		return fault.Internal(fmt.Errorf("demo: the generated study file is wrong: %w", err))
 	}
 	run.Out = o.Out
-	run.inputsDir = inDir
-	return sweepInto(&run, d)
+	run.InputsDir = inDir
+	return sweep(&run, d)
 }

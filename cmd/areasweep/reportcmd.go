@@ -7,6 +7,8 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/pipeline"
 	"areasweep/report"
 )
 
@@ -50,33 +52,33 @@ func reportRun(o *ReportOptions) error {
 	path := filepath.Join(o.Dir, "results.json")
 	st, err := os.Stat(path)
 	if err != nil {
-		return badInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
+		return fault.BadInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
 	}
 	if !st.Mode().IsRegular() {
-		return badInput(fmt.Errorf("%s is not a regular file: give the --out directory of a finished run", path))
+		return fault.BadInput(fmt.Errorf("%s is not a regular file: give the --out directory of a finished run", path))
 	}
 	if st.Size() > maxResultsBytes {
-		return badInput(fmt.Errorf("%s is larger than %d MiB, more than a run writes; is this the right folder?", path, maxResultsBytes>>20))
+		return fault.BadInput(fmt.Errorf("%s is larger than %d MiB, more than a run writes; is this the right folder?", path, maxResultsBytes>>20))
 	}
 	if !o.Force {
 		for _, f := range []string{"report.html", "methods.md", "figures"} {
 			if _, err := os.Stat(filepath.Join(o.Dir, f)); err == nil {
-				return badInput(fmt.Errorf("%s already holds %s; add --force to re-render the report in place", o.Dir, f))
+				return fault.BadInput(fmt.Errorf("%s already holds %s; add --force to re-render the report in place", o.Dir, f))
 			}
 		}
 	}
 	r, err := report.Load(path)
 	if err != nil {
-		return badInput(err)
+		return fault.BadInput(err)
 	}
 	if err := report.Validate(r); err != nil {
-		return badInput(err)
+		return fault.BadInput(err)
 	}
 	if err := report.Analyze(r); err != nil {
-		return badInput(err)
+		return fault.BadInput(err)
 	}
 	if err := report.Write(o.Dir, r); err != nil {
-		return writeFailed(err)
+		return pipeline.WriteFailed(err)
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
 	return nil

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -14,6 +13,9 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/cmd/internal/pipeline"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
 )
@@ -40,38 +42,6 @@ const exitCodesHelp = `Exit codes:
 // -ldflags "-X main.version=...".
 var version = "0.1.0-dev"
 
-// inputError marks an error caused by the user's input or flags: exit 2.
-type inputError struct{ err error }
-
-func (e inputError) Error() string { return e.err.Error() }
-func (e inputError) Unwrap() error { return e.err }
-
-// badInput wraps err as an input error (nil stays nil).
-func badInput(err error) error {
-	if err == nil {
-		return nil
-	}
-	var ie inputError
-	if errors.As(err, &ie) {
-		return err
-	}
-	return inputError{err}
-}
-
-// internalError marks a broken internal contract (a bug): exit 3.
-type internalError struct{ err error }
-
-func (e internalError) Error() string { return e.err.Error() }
-func (e internalError) Unwrap() error { return e.err }
-
-// internal wraps err as an internal error (nil stays nil).
-func internal(err error) error {
-	if err == nil {
-		return nil
-	}
-	return internalError{err}
-}
-
 // IO holds the streams commands use; tests pass buffers.
 type IO struct {
 	In     io.Reader
@@ -84,10 +54,10 @@ type IO struct {
 // runLog is the log of the run in progress, for a crash report.
 var runLog struct {
 	mu sync.Mutex
-	b  *strings.Builder
+	b  *pipeline.Log
 }
 
-func setRunLog(b *strings.Builder) {
+func setRunLog(b *pipeline.Log) {
 	runLog.mu.Lock()
 	runLog.b = b
 	runLog.mu.Unlock()
@@ -107,7 +77,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	go func() {
 		select {
 		case s := <-sigs:
-			abortAll()
+			outdir.AbortAll()
 			n := int(s.(syscall.Signal))
 			fmt.Fprintf(errOut, "areasweep: stopped by %s; this run's partial results were removed and --out was left as it was\n", signalName(s))
 			os.Exit(128 + n)
@@ -116,7 +86,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	}()
 	defer func() {
 		if r := recover(); r != nil {
-			abortAll()
+			outdir.AbortAll()
 			code = reportCrash(r, debug.Stack(), errOut)
 		}
 	}()
@@ -131,12 +101,10 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		return exitOK
 	}
 	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
-	var ie inputError
-	var ne internalError
 	switch {
-	case errors.As(err, &ie):
+	case fault.IsBadInput(err):
 		return exitBadInput
-	case errors.As(err, &ne):
+	case fault.IsInternal(err):
 		fmt.Fprintln(errOut, "areasweep: this is a bug in areasweep; please report it with the command line and run.log")
 		return exitInternal
 	}
@@ -170,7 +138,7 @@ func reportCrash(r any, stack []byte, errOut io.Writer) int {
 		runLog.mu.Unlock()
 		fmt.Fprintf(&b, "internal error: %v\n\n%s", r, stack)
 		p := filepath.Join(dir, "run.log")
-		if os.WriteFile(p, []byte(b.String()), 0o644&^umask) == nil {
+		if os.WriteFile(p, []byte(b.String()), 0o644&^outdir.Umask) == nil {
 			where = p
 		}
 	}
@@ -199,7 +167,7 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return badInput(fmt.Errorf("%v (see 'areasweep %s --help')", err, c.Name()))
+		return fault.BadInput(fmt.Errorf("%v (see 'areasweep %s --help')", err, c.Name()))
 	})
 	root.AddCommand(
 		newRunCmd(streams, nil),
@@ -219,5 +187,5 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 	if a == nil {
 		return nil
 	}
-	return func(c *cobra.Command, args []string) error { return badInput(a(c, args)) }
+	return func(c *cobra.Command, args []string) error { return fault.BadInput(a(c, args)) }
 }

@@ -1,8 +1,10 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
@@ -10,53 +12,21 @@ import (
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 
+	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/cmd/internal/pipeline"
 	"areasweep/extent"
 	"areasweep/report"
 )
 
-// RunOptions holds everything a run needs. Flags and the study file fill
-// it; flags given on the command line win over the file.
+// RunOptions holds everything a run needs: the streams, the study file
+// and the pipeline's settings. Flags and the study file fill it; flags
+// given on the command line win over the file.
 type RunOptions struct {
-	IO *IO
-
-	Study              string
-	Models             []string // NAME=PATH
-	Nulls              []string // NAME=PATH, rasters scored as nulls
-	NoDistanceNull     bool
-	Occurrences        string
-	OccurrencesCRS     string
-	Region             string
-	Ecoregions         string
-	EcoregionField     string
-	EcoregionMinPoints int
-	EcoregionClip      bool
-	Extra              []string // NAME=PATH
-	RegionBuffers      []float64
-	PointBuffers       []float64
-	PointBuffersAll    bool
-	HullBuffers        []float64
-	E                  []float64
-	Iterations         int
-	Fraction           float64
-	Thresholds         []float64
-	Seed               uint64
-	Out                string
-	Force              bool
-	Quiet              bool
-	NoThin             bool
-	MembershipTIFF     bool
-	Workers            int
-	// Tolerances of the equivalence verdicts (report.Settings).
-	ToleranceAUC, TolerancePartialROC, ToleranceOmission, ToleranceBoyce float64
-
-	// ExtentsOnly stops after building and exporting the family.
-	ExtentsOnly bool
-
-	// inputsDir, when set, is a directory of generated inputs (the demo's)
-	// that is moved into Out/inputs with the results; input paths are
-	// recorded as they will be after the move.
-	inputsDir string
+	IO    *IO
+	Study string
+	pipeline.Options
 }
 
 // Bounds on settings, so that a typo cannot ask for hours or for more
@@ -79,7 +49,7 @@ const (
 
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
-	return RunOptions{
+	return RunOptions{Options: pipeline.Options{
 		EcoregionMinPoints: 1,
 		RegionBuffers:      []float64{-50, 50, 100, 250, 500},
 		PointBuffers:       []float64{50, 100, 200},
@@ -94,7 +64,7 @@ func defaultRunOptions() RunOptions {
 		TolerancePartialROC: report.DefaultTolerancePartialROC,
 		ToleranceOmission:   report.DefaultToleranceOmission,
 		ToleranceBoyce:      report.DefaultToleranceBoyce,
-	}
+	}}
 }
 
 const runExample = `  # everything from flags (negative buffer distances need the = form)
@@ -129,13 +99,34 @@ keys are the flag names; flags given on the command line override the file.`,
 func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command, []string) error {
 	return func(c *cobra.Command, args []string) error {
 		if err := opts.resolve(c.Flags()); err != nil {
-			return badInput(err)
+			return fault.BadInput(err)
 		}
 		if runF != nil {
 			return runF(opts)
 		}
-		return sweep(opts)
+		return sweep(opts, nil)
 	}
+}
+
+// sweep runs the pipeline on o into d (the demo's output folder) or, with
+// d nil, into --out, and prints where the results are.
+func sweep(o *RunOptions, d *outdir.Dir) error {
+	log := &pipeline.Log{}
+	setRunLog(log)
+	defer setRunLog(nil)
+	po := o.Options
+	po.StudyFile, po.Version = o.Study, version
+	res, err := pipeline.RunInto(context.Background(), po, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log}, d)
+	if err != nil {
+		return err
+	}
+	if o.ExtentsOnly {
+		fmt.Fprint(o.IO.Out, extentsTable(res.Extents))
+		fmt.Fprintf(o.IO.Out, "extents written to %s\n", filepath.Join(o.Out, "extents.gpkg"))
+	} else {
+		fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
+	}
+	return nil
 }
 
 // floatList is a comma-separated list flag. Its help shows LIST and a

@@ -7,6 +7,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"areasweep/cmd/internal/fault"
 )
 
 // TestRunFlags checks argv -> RunOptions: defaults, flags, the study file
@@ -65,7 +67,7 @@ func TestRunFlags(t *testing.T) {
 				if err == nil || !strings.Contains(err.Error(), c.err) {
 					t.Fatalf("error %v, want %q", err, c.err)
 				}
-				if _, ok := err.(inputError); !ok {
+				if !fault.IsBadInput(err) {
 					t.Errorf("error %v is not an input error (exit 2)", err)
 				}
 				return

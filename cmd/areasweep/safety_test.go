@@ -13,6 +13,13 @@ import (
 	"time"
 )
 
+// The names of a run's lock file and staging folders (package outdir),
+// spelled out here as a user sees them.
+const (
+	stagePrefix = ".areasweep-partial-"
+	lockSuffix  = ".areasweep-lock"
+)
+
 // slowArgs is a good run made slow by its bootstrap (a million iterations
 // per model and extent), so that a signal or a second run lands while it
 // is still scoring.
@@ -150,83 +157,6 @@ func TestDeadStagingRemoved(t *testing.T) {
 	if !strings.Contains(string(log), "removed 2 staging folder(s)") {
 		t.Errorf("run.log does not report the removal:\n%s", log)
 	}
-}
-
-// TestFinishNeverDeletesOthersFiles drives the output folder directly:
-// files that appear in --out during a run are kept, a name clash without
-// --force moves nothing and keeps the results in a visible folder, and
-// --force replaces only areasweep's own entries.
-func TestFinishNeverDeletesOthersFiles(t *testing.T) {
-	stage := func(t *testing.T, d *outDir) {
-		os.WriteFile(filepath.Join(d.Stage, "results.json"), []byte("new"), 0o644)
-		os.MkdirAll(filepath.Join(d.Stage, "figures"), 0o755)
-	}
-	t.Run("file appeared, no clash", func(t *testing.T) {
-		out := filepath.Join(t.TempDir(), "res")
-		d, err := openOut(out, false, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		stage(t, d)
-		os.MkdirAll(out, 0o755)
-		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
-		if err := d.finish(); err != nil {
-			t.Fatal(err)
-		}
-		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
-			t.Error("a file put into --out during the run was lost")
-		}
-		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "new" {
-			t.Error("results not moved in")
-		}
-	})
-	t.Run("clash without force", func(t *testing.T) {
-		out := filepath.Join(t.TempDir(), "res")
-		d, err := openOut(out, false, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		stage(t, d)
-		os.MkdirAll(out, 0o755)
-		os.WriteFile(filepath.Join(out, "results.json"), []byte("theirs"), 0o644)
-		err = d.finish()
-		if err == nil || !strings.Contains(err.Error(), "gained results.json") {
-			t.Fatalf("finish = %v", err)
-		}
-		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "theirs" {
-			t.Error("a file that appeared during the run was replaced without --force")
-		}
-		kept := out + ".results-" + strconv.Itoa(os.Getpid())
-		if b, _ := os.ReadFile(filepath.Join(kept, "results.json")); string(b) != "new" {
-			t.Errorf("results not kept in %s", kept)
-		}
-	})
-	t.Run("force replaces only areasweep's files", func(t *testing.T) {
-		out := filepath.Join(t.TempDir(), "res")
-		os.MkdirAll(filepath.Join(out, "figures"), 0o755)
-		os.WriteFile(filepath.Join(out, "figures", "old.svg"), []byte("old"), 0o644)
-		os.WriteFile(filepath.Join(out, "extents.tif"), []byte("old"), 0o644)
-		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
-		d, err := openOut(out, true, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		stage(t, d)
-		if err := d.finish(); err != nil {
-			t.Fatal(err)
-		}
-		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
-			t.Error("--force deleted a file areasweep does not write")
-		}
-		for _, gone := range []string{"figures/old.svg", "extents.tif"} {
-			if _, err := os.Stat(filepath.Join(out, gone)); err == nil {
-				t.Errorf("old %s kept next to the new results", gone)
-			}
-		}
-		if l := leftovers(filepath.Dir(out)); len(l) > 0 {
-			t.Errorf("left behind: %v", l)
-		}
-	})
 }
 
 // TestOutputsHonourUmask: folders are made 0777 &^ umask and files

@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"fmt"
@@ -27,15 +27,23 @@ type tallyScratch struct {
 // tallyPool recycles the row buffers of the sorting-bias tally.
 var tallyPool = sync.Pool{New: func() any { return new(tallyScratch) }}
 
-// scoreDistanceNull scores the distance-only null as the run's i-th pass
-// (never the first: it needs the valid cells the first pass finds) through
-// the same path as a model raster, and records each extent's spatial
-// sorting bias from the same pass.
-func (s *session) scoreDistanceNull(i int) error {
+// distanceNull is what the distance-only null's pass keeps besides its
+// sums: the training points' index and each extent's distance tally.
+type distanceNull struct {
+	ix *geodesy.Index
+	bg nullmodel.Background
+}
+
+// planDistanceNull plans the distance-only null as the run's i-th pass
+// (never the first: it needs the valid cells the first pass finds),
+// scored through the same path as a model raster; the same pass tallies
+// each extent's distances for its spatial sorting bias. Without scored
+// training points the pass is skipped (nil) with a warning.
+func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	train, _, _ := s.scoredPoints("train")
 	if len(train) == 0 {
 		s.warn("no training point is scored, so the distance-only null cannot be computed")
-		return nil
+		return nil, nil
 	}
 	lats := make([]float64, len(train))
 	lons := make([]float64, len(train))
@@ -44,12 +52,12 @@ func (s *session) scoreDistanceNull(i int) error {
 	}
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {
-		return fmt.Errorf("distance-only null: %w", err)
+		return nil, fmt.Errorf("distance-only null: %w", err)
 	}
 	g := s.grid
 	field := nullmodel.New(ix, pass.CellCentres(g))
 	far := field.FarthestBound(g.Width, g.Height, farthestStep)
-	var bg nullmodel.Background
+	dn := &distanceNull{ix: ix}
 	fam := s.fam
 	// Each ok member's cells of the row, taken from its runs, go to its own
 	// tally (the distance is minus the null's value).
@@ -70,27 +78,25 @@ func (s *session) scoreDistanceNull(i int) error {
 					sc.d, sc.w = append(sc.d, 0-vals[x]), append(sc.w, w[x])
 				}
 			}
-			bg.Add(k, sc.d, sc.w)
+			dn.bg.Add(k, sc.d, sc.w)
 		}
 	}
+	p := &Plan{Index: i, Model: s.Passes()[i], src: pass.NewVirtual(g, field), rows: rows, null: dn}
 	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training
 	// points and the grid alone, so the same inputs give the same null
 	// Boyce index (the null has no file layout). An exact range would cost
 	// a second distance pass; a GeoTIFF copy of the null spans its exact
 	// range instead, so only its Boyce index may differ.
-	m := report.Model{Name: report.DistanceNullName, Role: report.RoleNull, NullKind: report.NullDistance}
-	if err := s.scoreSource(i, m, pass.NewVirtual(g, field), -math.Max(far, 1), 0, rows); err != nil {
-		return err
+	if err := s.layout(p, -math.Max(far, 1), 0); err != nil {
+		return nil, err
 	}
-	s.res.Settings.DistanceNull = true
-	s.sortingBias(ix, &bg)
-	return nil
+	return p, nil
 }
 
 // sortingBias records every scored extent's spatial sorting bias: the test
 // points' geodesic distances to the nearest training point (from their own
 // coordinates, as nearest_train_km) against the extent's cells' (bg).
-func (s *session) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
+func (s *Study) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 	t0 := time.Now()
 	dist := make([]float64, len(s.points))
 	for j, p := range s.points {

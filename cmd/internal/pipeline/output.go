@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"bytes"
@@ -8,11 +8,11 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/airbusgeo/godal"
 	"github.com/schollz/progressbar/v3"
 
+	"areasweep/cmd/internal/outdir"
 	"areasweep/extent"
 	"areasweep/metrics"
 	"areasweep/report"
@@ -33,7 +33,7 @@ func writeAtomic(path string, data []byte) error {
 		os.Remove(tmp.Name())
 		return err
 	}
-	if err := os.Chmod(tmp.Name(), 0o666&^umask); err != nil {
+	if err := os.Chmod(tmp.Name(), 0o666&^outdir.Umask); err != nil {
 		os.Remove(tmp.Name())
 		return err
 	}
@@ -162,22 +162,6 @@ func extentsCSV(ex []report.Extent) []byte {
 	return buf.Bytes()
 }
 
-// extentsTable renders the family summary for a terminal.
-func extentsTable(ex []report.Extent) string {
-	var sb strings.Builder
-	tw := tabwriter.NewWriter(&sb, 2, 4, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "id\tkind\tcells\tarea km2\tshare\ttrain\ttest\tstatus\t")
-	for _, e := range ex {
-		st := string(e.Status)
-		if e.DuplicateOf != "" {
-			st += " of " + e.DuplicateOf
-		}
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%.1f\t%.3f\t%d\t%d\t%s\t\n", e.ID, e.Kind, e.Cells, e.AreaKm2, e.ShareOfRaster, e.TrainPoints, e.TestPoints, st)
-	}
-	tw.Flush()
-	return sb.String()
-}
-
 // writeOmittedGPKG writes the test points with, per model and threshold, a
 // 0/1 field saying whether the threshold omits them (layer
 // "test_points"), so the spatial pattern of omission can be mapped.
@@ -261,11 +245,11 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 // bar is a progress bar on stderr, drawn only on a terminal.
 type bar struct{ pb *progressbar.ProgressBar }
 
-func (s *session) progress(what string, total int) *bar {
-	if s.o.Quiet || !s.o.IO.Terminal {
+func (s *Study) progress(what string, total int) *bar {
+	if s.o.Quiet || !s.io.Terminal || s.io.ErrOut == nil {
 		return &bar{}
 	}
-	return &bar{progressbar.NewOptions(total, progressbar.OptionSetWriter(s.o.IO.ErrOut), progressbar.OptionSetDescription(what),
+	return &bar{progressbar.NewOptions(total, progressbar.OptionSetWriter(s.io.ErrOut), progressbar.OptionSetDescription(what),
 		progressbar.OptionShowCount(), progressbar.OptionClearOnFinish())}
 }
 

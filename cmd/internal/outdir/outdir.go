@@ -1,4 +1,13 @@
-package main
+// Package outdir guards the output folder of a run (--out) so that no run
+// loses data: it checks --out against the inputs, locks it, stages the
+// results beside or inside it and moves them into place at the end, or
+// removes them on an error, a signal or a crash.
+//
+// It is a package of its own, not part of the pipeline, because the
+// command's demo (which writes its generated inputs into the staging
+// folder first) and later commands that write into an output folder use it
+// without running a sweep.
+package outdir
 
 import (
 	"errors"
@@ -10,6 +19,8 @@ import (
 	"strings"
 	"sync"
 	"syscall"
+
+	"areasweep/cmd/internal/fault"
 )
 
 // The output directory of a run is guarded so that no run loses data:
@@ -44,18 +55,23 @@ const (
 	oldStageMarker = ".partial-" // staging folders of earlier versions: .NAME.partial-*
 )
 
-// outDir is a locked output directory and its staging folder.
-type outDir struct {
-	Out     string // as given, cleaned
+// Dir is a locked output directory and its staging folder. Write the
+// results into Stage, then call Finish; call Abort on every other path
+// (it does nothing after Finish).
+type Dir struct {
+	Out   string // as given, cleaned
+	Stage string // the staging folder the results are written into
+	// Demo marks the demo's run: inputs/ is also an output entry.
+	Demo bool
+	// Cleaned is the number of staging folders of dead runs removed.
+	Cleaned int
+
 	abs     string
 	parent  string
 	name    string
 	force   bool
-	demo    bool // the demo: inputs/ is also an output entry
 	lock    *os.File
-	Stage   string
 	created []string // parent folders this run made, deepest first
-	cleaned int      // staging folders of dead runs removed
 	mu      sync.Mutex
 	done    bool
 }
@@ -64,12 +80,12 @@ type outDir struct {
 // handler.
 var active struct {
 	mu   sync.Mutex
-	dirs []*outDir
+	dirs []*Dir
 }
 
-// umask is the process umask, read once at start; folders are created with
-// 0777 &^ umask like mkdir(1) does.
-var umask = readUmask()
+// Umask is the process umask, read once at start; folders are created with
+// 0777 &^ Umask like mkdir(1) does, and files with 0666 &^ Umask.
+var Umask = readUmask()
 
 func readUmask() os.FileMode {
 	m := syscall.Umask(0)
@@ -77,24 +93,24 @@ func readUmask() os.FileMode {
 	return os.FileMode(m)
 }
 
-// mkdirPerm is the mode of folders areasweep creates.
-func mkdirPerm() os.FileMode { return 0o777 &^ umask }
+// MkdirPerm is the mode of folders areasweep creates.
+func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
 
-// openOut checks --out against the inputs, locks it, removes staging
+// Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
-func openOut(out string, force bool, inputs []string) (*outDir, error) {
+func Open(out string, force bool, inputs []string) (*Dir, error) {
 	if out == "" {
-		return nil, badInput(errors.New("--out is empty; name an output directory"))
+		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
-	d := &outDir{Out: filepath.Clean(out), force: force}
+	d := &Dir{Out: filepath.Clean(out), force: force}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, badInput(fmt.Errorf("--out %s: %v", out, err))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: %v", out, err))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
 	if d.abs == d.parent {
-		return nil, badInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
+		return nil, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
 	}
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
 		return nil, err
@@ -103,17 +119,17 @@ func openOut(out string, force bool, inputs []string) (*outDir, error) {
 	exists := err == nil
 	if exists {
 		if !st.IsDir() {
-			return nil, badInput(fmt.Errorf("--out %s exists and is not a directory", out))
+			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory", out))
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
-			return nil, badInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
+			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
 		}
 		if len(visible(entries)) > 0 && !force {
-			return nil, badInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
+			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, badInput(fmt.Errorf("--out %s cannot be used: %v", out, errText(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %v", out, Cause(err)))
 	}
 	if err := d.makeParent(out); err != nil {
 		return nil, err
@@ -129,11 +145,11 @@ func openOut(out string, force bool, inputs []string) (*outDir, error) {
 	}
 	stage, err := os.MkdirTemp(where, prefix+strconv.Itoa(os.Getpid())+"-")
 	if err == nil {
-		err = os.Chmod(stage, mkdirPerm())
+		err = os.Chmod(stage, MkdirPerm())
 	}
 	if err != nil {
 		d.release()
-		return nil, badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, where, errText(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, where, Cause(err)))
 	}
 	d.Stage = stage
 	active.mu.Lock()
@@ -155,9 +171,9 @@ func visible(entries []os.DirEntry) []os.DirEntry {
 	return v
 }
 
-// errText is the part of a file-system error a user needs (the cause,
+// Cause is the part of a file-system error a user needs (the cause,
 // without the repeated path).
-func errText(err error) string {
+func Cause(err error) string {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
 		return pe.Err.Error()
@@ -212,10 +228,10 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 		dir := filepath.Dir(a)
 		switch {
 		case within(dir, outAbs):
-			return badInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
+			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
 				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
 		case within(outAbs, a):
-			return badInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
+			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
 		}
 	}
 	return nil
@@ -228,7 +244,7 @@ func isRemote(p string) bool {
 
 // makeParent creates the folders above --out that are missing and records
 // them, so that a run refused later removes them again.
-func (d *outDir) makeParent(out string) error {
+func (d *Dir) makeParent(out string) error {
 	var missing []string
 	for p := d.parent; ; p = filepath.Dir(p) {
 		if _, err := os.Stat(p); err == nil {
@@ -239,32 +255,32 @@ func (d *outDir) makeParent(out string) error {
 			break
 		}
 	}
-	if err := os.MkdirAll(d.parent, mkdirPerm()); err != nil {
-		return badInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
+	if err := os.MkdirAll(d.parent, MkdirPerm()); err != nil {
+		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
 	}
 	d.created = missing
 	return nil
 }
 
-func (d *outDir) removeCreated() {
+func (d *Dir) removeCreated() {
 	for _, p := range d.created {
 		os.Remove(p) // only removes empty folders
 	}
 }
 
 // lockPath is the lock file beside --out.
-func (d *outDir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lockSuffix) }
+func (d *Dir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lockSuffix) }
 
 // takeLock holds an exclusive flock on the lock file beside --out, and
 // writes the owner's PID into it for the message a second run prints. The
 // file is removed when the run ends; a run that locked a file another run
 // had just removed sees that the path now names another file, and tries
 // again.
-func (d *outDir) takeLock(out string) error {
+func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
-		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^umask)
+		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			return badInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, errText(err)))
+			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())
@@ -273,7 +289,7 @@ func (d *outDir) takeLock(out string) error {
 			if pid := strings.TrimSpace(string(owner)); pid != "" {
 				who += " (process " + pid + ")"
 			}
-			return badInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
+			return fault.BadInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
 		}
 		if sameFile(f, d.lockPath()) || try == 10 {
 			f.Truncate(0)
@@ -294,7 +310,7 @@ func sameFile(f *os.File, path string) bool {
 
 // cleanDead removes staging folders of this --out left by runs that died
 // (killed, power cut). Holding the lock proves their owners are gone.
-func (d *outDir) cleanDead(exists bool) {
+func (d *Dir) cleanDead(exists bool) {
 	var dead []string
 	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+oldStageMarker+"*")); m != nil {
 		dead = append(dead, m...)
@@ -310,7 +326,7 @@ func (d *outDir) cleanDead(exists bool) {
 	}
 	for _, p := range dead {
 		if os.RemoveAll(p) == nil {
-			d.cleaned++
+			d.Cleaned++
 		}
 	}
 }
@@ -320,10 +336,10 @@ func globEscape(s string) string {
 	return r.Replace(s)
 }
 
-// abort removes the staging folder and releases the lock; the previous
+// Abort removes the staging folder and releases the lock; the previous
 // content of --out is untouched. It is safe to call more than once and
 // from the signal handler.
-func (d *outDir) abort() {
+func (d *Dir) Abort() {
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	if d.done {
@@ -336,7 +352,7 @@ func (d *outDir) abort() {
 	d.release()
 }
 
-func (d *outDir) release() {
+func (d *Dir) release() {
 	if d.lock != nil {
 		os.Remove(d.lockPath()) // while still holding the lock
 		d.lock.Close()          // drops the flock
@@ -353,19 +369,19 @@ func (d *outDir) release() {
 	active.mu.Unlock()
 }
 
-// abortAll aborts every run in progress (signal handler).
-func abortAll() {
+// AbortAll aborts every run in progress (signal handler).
+func AbortAll() {
 	active.mu.Lock()
-	dirs := append([]*outDir(nil), active.dirs...)
+	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
 	for _, d := range dirs {
-		d.abort()
+		d.Abort()
 	}
 }
 
-// finish moves the staged results into --out (see the package comment at
-// the top of this file) and releases the lock.
-func (d *outDir) finish() error {
+// Finish moves the staged results into --out (see the comment at the
+// top of this file) and releases the lock.
+func (d *Dir) Finish() error {
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	if d.done {
@@ -379,7 +395,7 @@ func (d *outDir) finish() error {
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
-			return fmt.Errorf("cannot move the results into %s: %v", d.Out, errText(err))
+			return fmt.Errorf("cannot move the results into %s: %v", d.Out, Cause(err))
 		}
 		// --out appeared during the run: move the entries in one by one.
 	}
@@ -397,10 +413,10 @@ func (d *outDir) finish() error {
 // the results are kept in a visible folder beside --out. With --force the
 // existing areasweep entries are first set aside (and put back if a move
 // fails), then deleted.
-func (d *outDir) moveEntries() error {
+func (d *Dir) moveEntries() error {
 	staged, err := os.ReadDir(d.Stage)
 	if err != nil {
-		return fmt.Errorf("cannot read the staged results %s: %v", d.Stage, errText(err))
+		return fmt.Errorf("cannot read the staged results %s: %v", d.Stage, Cause(err))
 	}
 	names := map[string]bool{}
 	for _, e := range staged {
@@ -422,13 +438,13 @@ func (d *outDir) moveEntries() error {
 			d.Out, strings.Join(clash, ", "), keep)
 	}
 	replace := outputNames
-	if d.demo {
+	if d.Demo {
 		replace = append(append([]string{}, outputNames...), "inputs")
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {
 		os.RemoveAll(d.Stage)
-		return fmt.Errorf("cannot write in %s: %v", d.Out, errText(err))
+		return fmt.Errorf("cannot write in %s: %v", d.Out, Cause(err))
 	}
 	var setAside, moved []string
 	undo := func() {
@@ -447,7 +463,7 @@ func (d *outDir) moveEntries() error {
 		}
 		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot replace %s: %v", filepath.Join(d.Out, n), errText(err))
+			return fmt.Errorf("cannot replace %s: %v", filepath.Join(d.Out, n), Cause(err))
 		}
 		setAside = append(setAside, n)
 	}
@@ -455,7 +471,7 @@ func (d *outDir) moveEntries() error {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot move %s into %s: %v", n, d.Out, errText(err))
+			return fmt.Errorf("cannot move %s into %s: %v", n, d.Out, Cause(err))
 		}
 		moved = append(moved, n)
 	}

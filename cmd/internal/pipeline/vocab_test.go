@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"testing"

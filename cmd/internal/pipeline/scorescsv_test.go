@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"bytes"
@@ -16,7 +16,7 @@ import (
 // threshold-test rows agree with each other (missed = n - successes,
 // share missed = missed / n).
 func TestScoresCSV(t *testing.T) {
-	r, err := report.Load("../../testdata/report/sample_results.json")
+	r, err := report.Load("../../../testdata/report/sample_results.json")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"fmt"
@@ -11,7 +11,7 @@ import (
 
 // globalTest returns, per point, its index among the run's scored test
 // points (the index the paired resamples draw), or -1.
-func (s *session) globalTest() []int {
+func (s *Study) globalTest() []int {
 	g := make([]int, len(s.points))
 	n := 0
 	for j, p := range s.points {
@@ -27,13 +27,13 @@ func (s *session) globalTest() []int {
 // draws is the run's one set of full-size paired resamples of the test
 // points: B = --iterations, seeded by the run seed alone, so that every
 // model and extent sees the same index sets.
-func (s *session) draws() metrics.Draws {
+func (s *Study) draws() metrics.Draws {
 	return metrics.Draws{N: s.res.PointCounts.Test, B: s.o.Iterations, Seed: s.o.Seed}
 }
 
 // evaluator keeps the evaluator of model on extent for the paired
 // comparisons and returns the AUC's SD over the paired resamples.
-func (s *session) evaluator(model, ext string, acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (float64, error) {
+func (s *Study) evaluator(model, ext string, acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (float64, error) {
 	ths := make([]float64, len(out.Thresholds))
 	for i, t := range out.Thresholds {
 		ths[i] = t.Value
@@ -57,7 +57,7 @@ func (s *session) evaluator(model, ext string, acc *metrics.Accumulator, test []
 // stands above the null on the same test points). Models are taken from
 // Results.Models, so the distance-only null, scored outside s.models, takes
 // part.
-func (s *session) paired() error {
+func (s *Study) paired() error {
 	s.res.Paired = []report.Paired{}
 	var ids []string
 	for _, m := range s.fam.Members {
@@ -157,7 +157,7 @@ func (s *session) paired() error {
 
 // comparePair compares model ma on extent ea with model mb on extent eb on
 // their common test points (PairedRecords).
-func (s *session) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, error) {
+func (s *Study) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, error) {
 	a, b := s.evals[[2]string{ma, ea}], s.evals[[2]string{mb, eb}]
 	if a == nil || b == nil {
 		return nil, fmt.Errorf("paired %s: no evaluator for %s/%s or %s/%s", kind, ma, ea, mb, eb)
@@ -167,7 +167,7 @@ func (s *session) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, err
 
 // thresholdKeys returns the omission metric keys of model's thresholds, in
 // the order of its scores' Thresholds.
-func (s *session) thresholdKeys(model string) []string {
+func (s *Study) thresholdKeys(model string) []string {
 	for _, sc := range s.res.Scores {
 		if sc.Model == model && sc.Scored {
 			keys := make([]string, len(sc.Thresholds))

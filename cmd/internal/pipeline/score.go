@@ -1,9 +1,10 @@
-package main
+package pipeline
 
 import (
 	"encoding/base64"
-	"errors"
+	"encoding/binary"
 	"fmt"
+	"hash/fnv"
 	"math"
 	"sort"
 	"time"
@@ -24,7 +25,7 @@ type modelPoints struct {
 
 // split sorts the model's values at the points (vals, valid from Sample)
 // into training and test values of the scored points it has data at.
-func (s *session) split(vals []float64, valid []bool) modelPoints {
+func (s *Study) split(vals []float64, valid []bool) modelPoints {
 	var mp modelPoints
 	for j, p := range s.points {
 		if p.Status != report.PointScored || !valid[j] {
@@ -40,119 +41,23 @@ func (s *session) split(vals []float64, valid []bool) modelPoints {
 	return mp
 }
 
-// scoreModel samples model i at the points, streams it once through the
-// family's accumulators and scores every extent.
-func (s *session) scoreModel(i int, m namedPath) error {
-	r, err := pass.Open(m.Path)
-	if err != nil {
-		return badInput(err)
-	}
-	defer r.Close()
-	// The fine histogram (Boyce) spans the exact value range, so that the
-	// same pixels give the same index whatever the file layout.
-	lo, hi, ok, err := r.ExactRange()
-	if err != nil {
-		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
-	}
-	if !ok {
-		return badInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
-	}
-	role := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
-	if m.Null {
-		role.Role, role.NullKind = report.RoleNull, report.NullRaster
-	}
-	return s.scoreSource(i, role, r, lo, hi, nil)
-}
-
-// source is a model the pass can score: a raster or a computed field.
-type source interface {
-	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
-	Blocks() int
-	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
-}
-
-// scoreSource scores model m (name, path and role filled) from src, the
-// i-th pass of the run: values at the points, the layout (fine histogram
-// over [lo, hi] widened to the point values), one pass, and every metric
-// on every extent. rows, when set, sees every row of the pass.
-func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64, rows func(int, int, []float64, []int64)) error {
-	g, fam := s.grid, s.fam
-	vals, valid, err := src.Sample(g, s.cell)
-	if err != nil {
-		return badInput(err)
-	}
-	var layoutVals []float64
-	var missing []string
-	for k, p := range s.points {
-		if p.Status != report.PointScored {
-			continue
-		}
-		if !valid[k] {
-			missing = append(missing, fmt.Sprintf("line %d", p.ID))
-			continue
-		}
-		layoutVals = append(layoutVals, vals[k])
-	}
-	if len(missing) > 0 {
-		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
-	}
-	layoutVals = append(layoutVals, s.o.Thresholds...)
-	for _, v := range layoutVals {
-		lo, hi = math.Min(lo, v), math.Max(hi, v)
-	}
-	if !(hi > lo) {
-		hi = lo + 1
-	}
-	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
-	if err != nil {
-		if !finiteRange(lo, hi) {
-			return badInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
-		}
-		return internal(fmt.Errorf("model %s: %w", m.Name, err))
-	}
-	var pv *pass.Preview
-	if i == 0 {
-		pv = pass.NewPreview(g, previewSide)
-	}
-	opt := pass.Options{Workers: s.o.Workers, Preview: pv, Rows: rows}
-	if s.valid == nil {
-		// The first pass also finds the valid cells the family is clipped to.
-		opt.Valid = extent.NewValid(g.Cells())
-	}
+// Score computes every metric of the pass p on every extent from its sums
+// (per member) and records them: the model's value range, the preview
+// (first pass), the scores, curves and paired evaluators per extent, the
+// rings of each chain and the omission lists; for the distance-only null
+// also each extent's sorting bias. The family must be final (clipped).
+func (s *Study) Score(p *Plan, sums *Sums) error {
 	t0 := time.Now()
-	bar := s.progress("scoring "+m.Name, src.Blocks())
-	opt.Progress = bar.update
-	accs, stats, err := src.Score(g, fam, layout, opt)
-	bar.finish()
-	if err != nil {
-		var ie *pass.InternalError
-		if errors.As(err, &ie) {
-			return internal(err)
-		}
-		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
-	}
-	how := "read once"
-	if m.NullKind == report.NullDistance {
-		how = "computed cell by cell (no file read)"
-	}
-	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
-	if stats.Area > 0 && stats.Min == stats.Max {
-		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
-	}
-	if opt.Valid != nil {
-		if err := s.timed("family clipped to the valid cells", func() error { return s.clip(opt.Valid) }); err != nil {
-			return err
-		}
-	}
-	t0 = time.Now()
+	fam := s.fam
+	m, accs, stats, vals, valid := p.Model, sums.Accs, sums.Stats, p.vals, p.valid
 	floor := 0.0
 	if stats.Area > 0 {
 		floor = float64(stats.FloorArea) / float64(stats.Area)
 	}
 	m.ValueMin, m.ValueMax, m.FloorShare = stats.Min, stats.Max, floor
 	s.res.Models = append(s.res.Models, m)
-	if pv != nil {
-		s.res.Preview = s.preview(pv, stats)
+	if sums.Preview != nil {
+		s.res.Preview = s.preview(sums.Preview, stats)
 	}
 	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds}
 	// Training-presence thresholds come from all of the model's scored
@@ -244,6 +149,10 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 		return err
 	}
 	s.omissions(m.Name, mp)
+	if p.null != nil {
+		s.res.Settings.DistanceNull = true
+		s.sortingBias(p.null.ix, &p.null.bg)
+	}
 	return nil
 }
 
@@ -274,7 +183,7 @@ func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
 //	AUC_B = (W_A AUC_A' + W_R AUC_R) / (W_A + W_R)
 //
 // holds exactly, where AUC_A' is the AUC of B's presences against A's cells.
-func (s *session) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
+func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
 	for _, name := range s.fam.ChainNames() {
 		chain := s.fam.Chain(name)
 		var rs []report.Ring
@@ -315,7 +224,7 @@ func (s *session) rings(model string, accs []*metrics.Accumulator, presence func
 // omissions lists, per threshold, the test points the model omits. The
 // thresholds come from the training presences and fixed values only, so
 // the lists do not depend on the extent.
-func (s *session) omissions(model string, mp modelPoints) {
+func (s *Study) omissions(model string, mp modelPoints) {
 	train, test, testIDs := mp.train, mp.test, mp.testIDs
 	type th struct {
 		name metrics.ThresholdRule
@@ -342,7 +251,7 @@ func (s *session) omissions(model string, mp modelPoints) {
 }
 
 // preview packs the pass's coarse copy and the extents' masks.
-func (s *session) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
+func (s *Study) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 	g, fam := s.grid, s.fam
 	lo, hi := st.Min, st.Max
 	vals := make([]byte, len(pv.Values))
@@ -368,9 +277,9 @@ func (s *session) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 	return p
 }
 
-// finishResults adds distances between test and training points and the
+// analyse adds distances between test and training points and the
 // sensitivity analysis.
-func (s *session) finishResults() error {
+func (s *Study) analyse() error {
 	train, _, _ := s.scoredPoints("train")
 	if len(train) > 0 {
 		lats := make([]float64, len(train))
@@ -404,4 +313,17 @@ func (s *session) finishResults() error {
 		return err
 	}
 	return report.Analyze(s.res)
+}
+
+// deriveSeed gives each model x extent its own bootstrap stream, fixed by
+// the run seed and the names alone (not by order or core count).
+func deriveSeed(seed uint64, model, ext string) uint64 {
+	h := fnv.New64a()
+	var b [8]byte
+	binary.LittleEndian.PutUint64(b[:], seed)
+	h.Write(b[:])
+	h.Write([]byte(model))
+	h.Write([]byte{0})
+	h.Write([]byte(ext))
+	return h.Sum64()
 }

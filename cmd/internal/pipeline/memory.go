@@ -1,4 +1,4 @@
-package main
+package pipeline
 
 import (
 	"bufio"
@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"areasweep/cmd/internal/fault"
 	"areasweep/extent"
 )
 
@@ -49,7 +50,7 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 
 // maxExtents is an upper bound on the members the settings can make,
 // before the family is built.
-func (o *RunOptions) maxExtents() int {
+func (o *Options) maxExtents() int {
 	n := 2 + len(sortedUniqueNonZero(o.RegionBuffers)) + len(o.PointBuffers) + len(o.HullBuffers) + len(o.Extra)
 	if o.Ecoregions != "" {
 		n += 4
@@ -96,7 +97,7 @@ const memoryShare = 0.8
 
 // checkMemory refuses a run whose estimate exceeds memoryShare of the
 // available memory, with the figure and what to change.
-func (s *session) checkMemory() error {
+func (s *Study) checkMemory() error {
 	o, g := s.o, s.grid
 	workers := o.Workers
 	if workers <= 0 {
@@ -111,7 +112,7 @@ func (s *session) checkMemory() error {
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
-	return badInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the map of cells with data (1 bit per cell) and the extents' row runs, "+
+	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the map of cells with data (1 bit per cell) and the extents' row runs, "+
 		"and %d worker(s) x %d extents need %s for the scores; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers or extents",
 		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators)))

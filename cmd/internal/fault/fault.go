@@ -1,0 +1,60 @@
+// Package fault classifies the errors of a run by whose fault they are, so
+// that the command maps them to exit codes in one place: an error the
+// user's input or settings caused (exit 2, nothing written), a broken
+// internal contract, that is a bug (exit 3), or anything else, such as a
+// full disk (exit 1).
+//
+// Libraries below the command (pipeline, outdir) wrap what they return with
+// BadInput or Internal; the command reads the class with errors.As.
+package fault
+
+import "errors"
+
+// InputError marks an error caused by the user's input or flags.
+type InputError struct{ Err error }
+
+func (e InputError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the wrapped error.
+func (e InputError) Unwrap() error { return e.Err }
+
+// BadInput wraps err as an input error (nil stays nil; an input error is
+// not wrapped twice).
+func BadInput(err error) error {
+	if err == nil {
+		return nil
+	}
+	var ie InputError
+	if errors.As(err, &ie) {
+		return err
+	}
+	return InputError{err}
+}
+
+// InternalError marks a broken internal contract (a bug).
+type InternalError struct{ Err error }
+
+func (e InternalError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the wrapped error.
+func (e InternalError) Unwrap() error { return e.Err }
+
+// Internal wraps err as an internal error (nil stays nil).
+func Internal(err error) error {
+	if err == nil {
+		return nil
+	}
+	return InternalError{err}
+}
+
+// IsBadInput reports whether err is, or wraps, an input error.
+func IsBadInput(err error) bool {
+	var ie InputError
+	return errors.As(err, &ie)
+}
+
+// IsInternal reports whether err is, or wraps, an internal error.
+func IsInternal(err error) bool {
+	var ne InternalError
+	return errors.As(err, &ne)
+}

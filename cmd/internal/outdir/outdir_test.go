@@ -1,0 +1,104 @@
+package outdir
+
+import (
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// leftovers lists staging folders, set-aside folders and lock files under
+// dir.
+func leftovers(dir string) []string {
+	var found []string
+	filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return nil
+		}
+		n := d.Name()
+		if strings.Contains(n, "areasweep-partial") || strings.Contains(n, oldStageMarker) || strings.HasPrefix(n, holdPrefix) || strings.HasSuffix(n, lockSuffix) {
+			found = append(found, p)
+		}
+		return nil
+	})
+	return found
+}
+
+// TestFinishNeverDeletesOthersFiles drives the output folder directly:
+// files that appear in --out during a run are kept, a name clash without
+// --force moves nothing and keeps the results in a visible folder, and
+// --force replaces only areasweep's own entries.
+func TestFinishNeverDeletesOthersFiles(t *testing.T) {
+	stage := func(t *testing.T, d *Dir) {
+		os.WriteFile(filepath.Join(d.Stage, "results.json"), []byte("new"), 0o644)
+		os.MkdirAll(filepath.Join(d.Stage, "figures"), 0o755)
+	}
+	t.Run("file appeared, no clash", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		d, err := Open(out, false, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		os.MkdirAll(out, 0o755)
+		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+		if err := d.Finish(); err != nil {
+			t.Fatal(err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
+			t.Error("a file put into --out during the run was lost")
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "new" {
+			t.Error("results not moved in")
+		}
+	})
+	t.Run("clash without force", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		d, err := Open(out, false, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		os.MkdirAll(out, 0o755)
+		os.WriteFile(filepath.Join(out, "results.json"), []byte("theirs"), 0o644)
+		err = d.Finish()
+		if err == nil || !strings.Contains(err.Error(), "gained results.json") {
+			t.Fatalf("finish = %v", err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "theirs" {
+			t.Error("a file that appeared during the run was replaced without --force")
+		}
+		kept := out + ".results-" + strconv.Itoa(os.Getpid())
+		if b, _ := os.ReadFile(filepath.Join(kept, "results.json")); string(b) != "new" {
+			t.Errorf("results not kept in %s", kept)
+		}
+	})
+	t.Run("force replaces only areasweep's files", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		os.MkdirAll(filepath.Join(out, "figures"), 0o755)
+		os.WriteFile(filepath.Join(out, "figures", "old.svg"), []byte("old"), 0o644)
+		os.WriteFile(filepath.Join(out, "extents.tif"), []byte("old"), 0o644)
+		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+		d, err := Open(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stage(t, d)
+		if err := d.Finish(); err != nil {
+			t.Fatal(err)
+		}
+		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
+			t.Error("--force deleted a file areasweep does not write")
+		}
+		for _, gone := range []string{"figures/old.svg", "extents.tif"} {
+			if _, err := os.Stat(filepath.Join(out, gone)); err == nil {
+				t.Errorf("old %s kept next to the new results", gone)
+			}
+		}
+		if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+			t.Errorf("left behind: %v", l)
+		}
+	})
+}

@@ -1,0 +1,114 @@
+package pipeline
+
+import (
+	"fmt"
+	"time"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
+	"areasweep/extent"
+	"areasweep/report"
+)
+
+// buildFamily builds the extent family and fills Results.Extents.
+func (s *Study) buildFamily() error {
+	o := s.o
+	train, trainCells, _ := s.scoredPoints("train")
+	test, testCells, _ := s.scoredPoints("test")
+	spec := extent.Spec{
+		Region:             o.Region,
+		RegionBuffersKm:    o.RegionBuffers,
+		Train:              train,
+		Test:               test,
+		PointBuffersAll:    o.PointBuffersAll,
+		Ecoregions:         o.Ecoregions,
+		EcoregionField:     o.EcoregionField,
+		EcoregionMinPoints: o.EcoregionMinPoints,
+		EcoregionClip:      o.EcoregionClip,
+	}
+	if len(train) > 0 {
+		spec.PointBuffersKm = o.PointBuffers
+		spec.HullBuffersKm = o.HullBuffers
+	} else {
+		spec.Ecoregions = ""
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		spec.Extra = append(spec.Extra, extent.Named{Name: name, Path: path})
+	}
+	s.logf("building the extent family")
+	t0 := time.Now()
+	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
+	if err != nil {
+		// Every failure here comes from the region, point or polygon inputs
+		// or from settings asking for too many extents.
+		return fault.BadInput(err)
+	}
+	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
+	s.fam = fam
+	for _, w := range fam.Warnings {
+		s.warn(w)
+	}
+	s.nWarn = len(fam.Warnings)
+	if fam.Members[0].Cells == 0 {
+		return fault.BadInput(fmt.Errorf("%w: %s covers no cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, o.Region, s.models[0].Path))
+	}
+	if s.valid != nil {
+		if err := s.recordExtents(); err != nil {
+			return err
+		}
+	}
+	s.res.Settings = report.Settings{
+		RegionBuffersKm: nonNil(o.RegionBuffers), PointBuffersKm: nonNil(spec.PointBuffersKm), PointBufferAll: o.PointBuffersAll,
+		HullBuffersKm: nonNil(spec.HullBuffersKm), EcoregionMinPoints: o.EcoregionMinPoints, EcoregionField: o.EcoregionField,
+		E: nonNil(o.E), Iterations: o.Iterations, ResampleFraction: o.Fraction, FixedThresholds: nonNil(o.Thresholds),
+		ThinPerCell: !o.NoThin, BoyceWindow: 0.1, BoyceSteps: 100, PairedResamples: o.Iterations,
+		ToleranceAUC: o.ToleranceAUC, TolerancePartialROC: o.TolerancePartialROC, ToleranceOmission: o.ToleranceOmission, ToleranceBoyce: o.ToleranceBoyce,
+		EcoregionClip: o.EcoregionClip, OccurrencesCRS: o.OccurrencesCRS, Extra: []string{},
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		s.res.Settings.Extra = append(s.res.Settings.Extra, name+"="+s.recordedPath(path))
+	}
+	return nil
+}
+
+// Clip restricts the family to valid, the cells with data the first pass
+// found (Sums.Valid), and records it in the results: from then on the
+// extents are final. Pass calls it after the first pass.
+func (s *Study) Clip(valid extent.Valid) error {
+	_, trainCells, _ := s.scoredPoints("train")
+	_, testCells, _ := s.scoredPoints("test")
+	s.valid = valid
+	s.fam.Clip(valid, trainCells, testCells)
+	for _, w := range s.fam.Warnings[s.nWarn:] {
+		s.warn(w)
+	}
+	s.nWarn = len(s.fam.Warnings)
+	return s.recordExtents()
+}
+
+// recordExtents copies the (clipped) family into Results.Extents.
+func (s *Study) recordExtents() error {
+	fam := s.fam
+	if fam.Members[0].Cells == 0 {
+		return fault.BadInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, s.models[0].Path))
+	}
+	s.res.Extents = s.res.Extents[:0]
+	for _, m := range fam.Members {
+		s.res.Extents = append(s.res.Extents, report.Extent{
+			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
+			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
+			Status: report.ExtentStatus(m.Status), DuplicateOf: m.DuplicateOf, Chain: m.Chain,
+		})
+		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
+	}
+	return nil
+}
+
+func nonNil(v []float64) []float64 {
+	if v == nil {
+		return []float64{}
+	}
+	return v
+}

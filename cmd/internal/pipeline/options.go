@@ -1,0 +1,105 @@
+package pipeline
+
+import (
+	"io"
+	"strings"
+	"sync"
+
+	"areasweep/cmd/internal/inputs"
+)
+
+// Options are the resolved settings of one run: the command fills them
+// from its flags and the study file and validates them before calling Run.
+type Options struct {
+	Models             []string // NAME=PATH
+	Nulls              []string // NAME=PATH, rasters scored as nulls
+	NoDistanceNull     bool
+	Occurrences        string
+	OccurrencesCRS     string
+	Region             string
+	Ecoregions         string
+	EcoregionField     string
+	EcoregionMinPoints int
+	EcoregionClip      bool
+	Extra              []string // NAME=PATH
+	RegionBuffers      []float64
+	PointBuffers       []float64
+	PointBuffersAll    bool
+	HullBuffers        []float64
+	E                  []float64
+	Iterations         int
+	Fraction           float64
+	Thresholds         []float64
+	Seed               uint64
+	Out                string
+	Force              bool
+	Quiet              bool
+	NoThin             bool
+	MembershipTIFF     bool
+	Workers            int
+	// Tolerances of the equivalence verdicts (report.Settings).
+	ToleranceAUC, TolerancePartialROC, ToleranceOmission, ToleranceBoyce float64
+
+	// ExtentsOnly stops after building and exporting the family.
+	ExtentsOnly bool
+
+	// InputsDir, when set, is a directory of generated inputs (the demo's)
+	// that is moved into Out/inputs with the results; input paths are
+	// recorded as they will be after the move.
+	InputsDir string
+	// StudyFile is the study file the settings came from, if any; it is
+	// only kept away from --out like the other inputs.
+	StudyFile string
+	// Version is the software version recorded in results.json.
+	Version string
+}
+
+// InputPaths lists every input file, for the check that --out holds none.
+func (o *Options) InputPaths() []string {
+	p := []string{o.Occurrences, o.Region, o.Ecoregions}
+	for _, m := range append(append(append([]string{}, o.Models...), o.Nulls...), o.Extra...) {
+		if _, path, err := inputs.ParseNamedPath(m); err == nil {
+			p = append(p, path)
+		}
+	}
+	return p
+}
+
+// IO are the streams a run writes to besides its output folder.
+type IO struct {
+	// ErrOut receives the log lines (unless Options.Quiet) and the
+	// progress bars.
+	ErrOut io.Writer
+	// Terminal is true when ErrOut is a terminal (progress bars are drawn).
+	Terminal bool
+	// Log, when set, receives the run log as it is written (the command
+	// reads it for a crash report); the same text goes to run.log.
+	Log *Log
+}
+
+// Log is the text of a run log, safe to read while the run writes it.
+type Log struct {
+	mu sync.Mutex
+	b  strings.Builder
+}
+
+// WriteString appends s.
+func (l *Log) WriteString(s string) {
+	l.mu.Lock()
+	l.b.WriteString(s)
+	l.mu.Unlock()
+}
+
+// Write appends p; it never fails.
+func (l *Log) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+// String returns the log so far.
+func (l *Log) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
+}

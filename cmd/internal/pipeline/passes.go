@@ -1,0 +1,227 @@
+package pipeline
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"time"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/pass"
+	"areasweep/extent"
+	"areasweep/metrics"
+	"areasweep/report"
+)
+
+// Passes lists the run's passes in order: each model, each raster null,
+// then the distance-only null unless Options.NoDistanceNull. Pass i scores
+// Passes()[i].
+func (s *Study) Passes() []report.Model {
+	var ps []report.Model
+	for _, m := range s.models {
+		r := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
+		if m.Null {
+			r.Role, r.NullKind = report.RoleNull, report.NullRaster
+		}
+		ps = append(ps, r)
+	}
+	if !s.o.NoDistanceNull {
+		ps = append(ps, report.Model{Name: report.DistanceNullName, Role: report.RoleNull, NullKind: report.NullDistance})
+	}
+	return ps
+}
+
+// Pass runs pass i: its plan, its sums (one streaming pass over the
+// cells, or what SetSums gave), the clip of the family to the valid cells
+// after the first pass, and the scores.
+func (s *Study) Pass(ctx context.Context, i int) error {
+	p, err := s.Plan(i)
+	if err != nil || p == nil {
+		return err
+	}
+	defer p.Close()
+	sums, err := s.sums(s, ctx, p)
+	if err != nil {
+		return err
+	}
+	if sums.Valid != nil {
+		// The extents are final only once the first model has been read.
+		if err := s.timed("family clipped to the valid cells", func() error { return s.Clip(sums.Valid) }); err != nil {
+			return err
+		}
+	}
+	return s.Score(p, sums)
+}
+
+// Plan is one pass ready to run: the model, the source of its cells, its
+// values at the points and the layout of its accumulators.
+type Plan struct {
+	// Index is the pass's place in Passes.
+	Index int
+	// Model names the model or null (path and role filled).
+	Model report.Model
+	// Layout holds the exact bins of the pass's accumulators.
+	Layout *metrics.Layout
+
+	src   source
+	vals  []float64 // per point
+	valid []bool    // per point: the model has data there
+	rows  func(row, c0 int, vals []float64, w []int64)
+	null  *distanceNull
+	close func()
+}
+
+// Close releases the pass's source.
+func (p *Plan) Close() {
+	if p.close != nil {
+		p.close()
+		p.close = nil
+	}
+}
+
+// Sums are what a pass adds up over the cells.
+type Sums struct {
+	// Accs holds one accumulator per family member, in the plan's layout.
+	Accs []*metrics.Accumulator
+	// Stats are the pass's value range and areas.
+	Stats pass.Stats
+	// Valid is set by the first pass only: the cells with data, to which
+	// the family is then clipped.
+	Valid extent.Valid
+	// Preview is set by the first pass only: the coarse map copy.
+	Preview *pass.Preview
+}
+
+// SumsFunc gives the sums of the pass p of s.
+type SumsFunc func(s *Study, ctx context.Context, p *Plan) (*Sums, error)
+
+// SetSums replaces where a pass's sums come from (Stream by default), for
+// example by sums read back from files.
+func (s *Study) SetSums(f SumsFunc) { s.sums = f }
+
+// source is a model the pass can score: a raster or a computed field.
+type source interface {
+	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
+	Blocks() int
+	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
+}
+
+// Plan prepares pass i: opens its source, reads its values at the points
+// and sets the layout (presence values and fixed thresholds; the fine
+// histogram over the exact value range widened to the point values). It
+// returns nil, nil for a pass that is skipped (the distance-only null
+// without training points, with a warning).
+func (s *Study) Plan(i int) (*Plan, error) {
+	if i < len(s.models) {
+		return s.planModel(i, s.models[i])
+	}
+	return s.planDistanceNull(i)
+}
+
+// planModel opens model m's raster and reads its exact value range.
+func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
+	r, err := pass.Open(m.Path)
+	if err != nil {
+		return nil, fault.BadInput(err)
+	}
+	// The fine histogram (Boyce) spans the exact value range, so that the
+	// same pixels give the same index whatever the file layout.
+	lo, hi, ok, err := r.ExactRange()
+	if err != nil {
+		r.Close()
+		return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	if !ok {
+		r.Close()
+		return nil, fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
+	}
+	p := &Plan{Index: i, Model: s.Passes()[i], src: r, close: func() { r.Close() }}
+	if err := s.layout(p, lo, hi); err != nil {
+		p.Close()
+		return nil, err
+	}
+	return p, nil
+}
+
+// layout samples p's source at the points and sets p.Layout: its bins at
+// the scored points' values and the fixed thresholds, its fine histogram
+// over [lo, hi] widened to them.
+func (s *Study) layout(p *Plan, lo, hi float64) error {
+	m := p.Model
+	vals, valid, err := p.src.Sample(s.grid, s.cell)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	p.vals, p.valid = vals, valid
+	var layoutVals []float64
+	var missing []string
+	for k, pt := range s.points {
+		if pt.Status != report.PointScored {
+			continue
+		}
+		if !valid[k] {
+			missing = append(missing, fmt.Sprintf("line %d", pt.ID))
+			continue
+		}
+		layoutVals = append(layoutVals, vals[k])
+	}
+	if len(missing) > 0 {
+		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
+	}
+	layoutVals = append(layoutVals, s.o.Thresholds...)
+	for _, v := range layoutVals {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	if !(hi > lo) {
+		hi = lo + 1
+	}
+	p.Layout, err = metrics.NewLayout(layoutVals, lo, hi, histBins)
+	if err != nil {
+		if !finiteRange(lo, hi) {
+			return fault.BadInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
+		}
+		return fault.Internal(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	return nil
+}
+
+// Stream is the default source of a pass's sums: one block-by-block pass
+// over the model's cells on the workers, into one accumulator per member.
+// The first pass also finds the valid cells and the preview.
+func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	g, fam, m := s.grid, s.fam, p.Model
+	var pv *pass.Preview
+	if p.Index == 0 {
+		pv = pass.NewPreview(g, previewSide)
+	}
+	opt := pass.Options{Workers: s.o.Workers, Preview: pv, Rows: p.rows}
+	if s.valid == nil {
+		// The first pass also finds the valid cells the family is clipped to.
+		opt.Valid = extent.NewValid(g.Cells())
+	}
+	t0 := time.Now()
+	bar := s.progress("scoring "+m.Name, p.src.Blocks())
+	opt.Progress = bar.update
+	accs, stats, err := p.src.Score(g, fam, p.Layout, opt)
+	bar.finish()
+	if err != nil {
+		var ie *pass.InternalError
+		if errors.As(err, &ie) {
+			return nil, fault.Internal(err)
+		}
+		return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	how := "read once"
+	if m.NullKind == report.NullDistance {
+		how = "computed cell by cell (no file read)"
+	}
+	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, p.src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
+	if stats.Area > 0 && stats.Min == stats.Max {
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
+	}
+	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: pv}, nil
+}

@@ -1,0 +1,272 @@
+package pipeline
+
+import (
+	"context"
+	"fmt"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
+	"areasweep/metrics"
+	"areasweep/report"
+)
+
+// histBins is the size of the fine histogram used for the Boyce index and
+// curve drawing.
+const histBins = 4096
+
+// previewSide is the longer side of the coarse map copy in results.json.
+const previewSide = 240
+
+// Run runs the study o from its inputs to its outputs in --out and
+// returns the results it wrote. Everything that can be checked is checked
+// before --out is touched: the settings, every input file, the grids, the
+// occurrences and the memory the run needs.
+func Run(ctx context.Context, o Options, io IO) (*report.Results, error) {
+	return RunInto(ctx, o, io, nil)
+}
+
+// RunInto is Run into d, an output folder already opened (the demo's, which
+// holds the generated inputs); with d nil it opens o.Out itself. It reads
+// as the data flows.
+func RunInto(ctx context.Context, o Options, io IO, d *outdir.Dir) (*report.Results, error) {
+	// Inputs, grid, points, the output folder and the family.
+	s, err := Prepare(ctx, o, io, d)
+	if err != nil {
+		return nil, err
+	}
+	defer s.Close()
+	// One pass per model and null; the first also finds the valid cells
+	// the family is clipped to (Pass shows the step).
+	if !o.ExtentsOnly {
+		for i := range s.Passes() {
+			if err := s.Pass(ctx, i); err != nil {
+				return nil, err
+			}
+		}
+	}
+	// Analysis and outputs, moved into --out.
+	return s.Finish(ctx)
+}
+
+// Study is one run in progress: its settings, grid, points, family and the
+// results so far. Make it with Prepare, run each of its Passes with Pass
+// (or Plan, a source of sums and Score), then Finish it; Close it on every
+// path.
+type Study struct {
+	o      *Options
+	io     IO
+	log    *Log
+	start  time.Time
+	models []namedPath
+	grid   *extent.Grid
+	points []report.Point
+	lonlat []extent.LonLat // per point
+	cell   []int           // per point, -1 outside
+	fam    *extent.Family
+	res    *report.Results
+	dir    *outdir.Dir
+	ownDir bool
+	stage  string
+	valid  extent.Valid // nil until known: the family is then unclipped
+	nWarn  int          // family warnings already reported
+	// evals holds the paired-resample evaluator of every scored model x
+	// extent (paired.go).
+	evals map[[2]string]*metrics.Evaluator
+	// rawDegrees: the table's coordinates, declared projected, all lie in
+	// degree ranges.
+	rawDegrees bool
+	// sums gives a pass's sums (Stream unless SetSums replaced it).
+	sums SumsFunc
+}
+
+// Prepare checks the inputs, reads the grid and the points, opens the
+// output folder (d, or o.Out when d is nil) and builds the extent family.
+// Nothing is written before the inputs have been checked.
+func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, error) {
+	s := &Study{o: &o, io: io, log: io.Log, start: time.Now(), res: &report.Results{
+		SchemaVersion: report.SchemaVersion,
+		Software:      report.Software{Name: "areasweep", Version: o.Version},
+		Seed:          o.Seed,
+		Warnings:      []string{},
+	}}
+	if s.log == nil {
+		s.log = &Log{}
+	}
+	s.sums = (*Study).Stream
+	s.dir = d
+	for _, step := range []func() error{
+		s.checkFiles,
+		s.openGrid,
+		s.checkMemory,
+		func() error { return s.timed("occurrences read, placed and sampled", s.readPoints) },
+		func() error { return s.timed("input checksums (SHA-256)", s.checksums) },
+		ctx.Err,
+	} {
+		if err := step(); err != nil {
+			s.Close()
+			return nil, err
+		}
+	}
+	if s.dir == nil {
+		var err error
+		if s.dir, err = outdir.Open(o.Out, o.Force, append(o.InputPaths(), o.StudyFile)); err != nil {
+			return nil, err
+		}
+	}
+	if s.dir.Cleaned > 0 {
+		s.logf("removed %d staging folder(s) left in or beside %s by earlier runs that were stopped", s.dir.Cleaned, o.Out)
+	}
+	s.stage = s.dir.Stage
+	if err := s.buildFamily(); err != nil {
+		s.Close()
+		return nil, err
+	}
+	return s, nil
+}
+
+// Close removes the staging folder unless Finish moved it into place; it
+// is safe to call more than once.
+func (s *Study) Close() {
+	if s.dir != nil {
+		s.dir.Abort() // nothing once finished
+	}
+}
+
+// Results are the results so far (complete after Finish).
+func (s *Study) Results() *report.Results { return s.res }
+
+// Stage is the staging folder the outputs are written into.
+func (s *Study) Stage() string { return s.stage }
+
+// Finish writes the outputs into the staging folder and moves them into
+// --out: for a scoring run the family, the analysis (distances between
+// points, the paired comparisons, report.Analyze), results.json, scores.csv,
+// omitted_points.gpkg and the report; for ExtentsOnly the family and
+// extents.csv; then run.log.
+func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if s.o.ExtentsOnly {
+		if err := s.writeFamily(); err != nil {
+			return nil, err
+		}
+		if err := writeAtomic(filepath.Join(s.stage, "extents.csv"), extentsCSV(s.res.Extents)); err != nil {
+			return nil, WriteFailed(err)
+		}
+	} else {
+		if err := s.writeFamily(); err != nil {
+			return nil, err
+		}
+		if err := s.timed("analysis", s.analyse); err != nil {
+			return nil, err
+		}
+		if err := s.timed("results.json, scores.csv and omitted_points.gpkg written", s.writeResults); err != nil {
+			return nil, err
+		}
+		t0 := time.Now()
+		if err := report.Write(s.stage, s.res); err != nil {
+			return nil, WriteFailed(err)
+		}
+		s.logf("report written in %.2f s", time.Since(t0).Seconds())
+	}
+	s.libraryMessages()
+	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(s.start).Seconds())
+	if err := writeAtomic(filepath.Join(s.stage, "run.log"), []byte(s.log.String())); err != nil {
+		return nil, WriteFailed(err)
+	}
+	if err := s.dir.Finish(); err != nil {
+		return nil, err
+	}
+	return s.res, nil
+}
+
+// writeResults writes results.json, scores.csv and omitted_points.gpkg
+// into the staging folder.
+func (s *Study) writeResults() error {
+	data, err := s.res.Encode()
+	if err != nil {
+		return fault.Internal(err)
+	}
+	if err := writeAtomic(filepath.Join(s.stage, "results.json"), data); err != nil {
+		return WriteFailed(err)
+	}
+	if err := writeAtomic(filepath.Join(s.stage, "scores.csv"), scoresCSV(s.res)); err != nil {
+		return WriteFailed(err)
+	}
+	if err := writeOmittedGPKG(filepath.Join(s.stage, "omitted_points.gpkg"), s.res); err != nil {
+		return WriteFailed(err)
+	}
+	return nil
+}
+
+// recordedPath is the path written into results.json for an input: as
+// given, or for generated demo inputs, where they end up (OUT/inputs/...).
+func (s *Study) recordedPath(p string) string {
+	if d := s.o.InputsDir; d != "" {
+		if rel, err := filepath.Rel(d, p); err == nil && !strings.HasPrefix(rel, "..") {
+			return filepath.Join(s.o.Out, "inputs", rel)
+		}
+	}
+	return p
+}
+
+// namedPath is a model raster by name; Null marks one the user gave as a
+// null (--null).
+type namedPath struct {
+	Name, Path string
+	Null       bool
+}
+
+// logf writes a line to the run log and, unless quiet, to stderr.
+func (s *Study) logf(format string, args ...any) {
+	line := fmt.Sprintf(format, args...)
+	s.log.WriteString(line + "\n")
+	if !s.o.Quiet && s.io.ErrOut != nil {
+		fmt.Fprintln(s.io.ErrOut, line)
+	}
+}
+
+func (s *Study) warn(msg string) {
+	s.res.Warnings = append(s.res.Warnings, msg)
+	s.logf("warning: %s", msg)
+}
+
+// WriteFailed words an error while writing the outputs (exit 1).
+func WriteFailed(err error) error {
+	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err)))
+}
+
+// libraryMessages moves the messages GDAL and its libraries raised outside
+// any call that reported them as errors into the run log (not the
+// terminal), one line each.
+func (s *Study) libraryMessages() {
+	msgs, dropped := gdalmsg.Drain()
+	for _, m := range msgs {
+		s.log.WriteString(m.String() + "\n")
+	}
+	if dropped > 0 {
+		fmt.Fprintf(s.log, "library messages: %d more not kept\n", dropped)
+	}
+}
+
+// writeFamily exports the (clipped) family: extents.gpkg and, when asked,
+// extents.tif.
+func (s *Study) writeFamily() error {
+	if err := s.timed("extents.gpkg written", func() error {
+		return s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg"))
+	}); err != nil {
+		return WriteFailed(err)
+	}
+	if s.o.MembershipTIFF {
+		if err := s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif")); err != nil {
+			return WriteFailed(err)
+		}
+	}
+	return nil
+}

@@ -1,0 +1,363 @@
+package pipeline
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/pass"
+	"areasweep/extent"
+	"areasweep/report"
+)
+
+// checkFiles checks that every input file exists and lists the models
+// and raster nulls.
+func (s *Study) checkFiles() error {
+	o := s.o
+	for _, m := range o.Models {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("model "+name, path); err != nil {
+			return err
+		}
+		s.models = append(s.models, namedPath{Name: name, Path: path})
+	}
+	for _, m := range o.Nulls {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("null "+name, path); err != nil {
+			return err
+		}
+		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
+	}
+	for _, p := range []struct{ what, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+		if p.path != "" {
+			if err := mustExist(p.what, p.path); err != nil {
+				return err
+			}
+		}
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := mustExist("extra extent "+name, path); err != nil {
+			return err
+		}
+	}
+	if len(s.models) == 0 {
+		return fault.BadInput(errors.New("no model raster given (--model NAME=PATH); even 'extents' needs one for the grid"))
+	}
+	return nil
+}
+
+// openGrid takes the grid from the first model and checks that every other
+// model and null lies on the same grid.
+func (s *Study) openGrid() error {
+	for i, m := range s.models {
+		g, err := extent.OpenGrid(m.Path)
+		if err != nil {
+			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+		}
+		if i == 0 {
+			s.grid = g
+			continue
+		}
+		if d := s.grid.SameAs(g); d != "" {
+			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid (e.g. gdalwarp -tr/-te)",
+				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d))
+		}
+		g.Close()
+	}
+	g := s.grid
+	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
+	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
+	return nil
+}
+
+func mustExist(what, path string) error {
+	st, err := os.Stat(path)
+	if err != nil {
+		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
+	}
+	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
+		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+	}
+	return nil
+}
+
+func shortText(s string, n int) string {
+	if len(s) > n {
+		return s[:n] + "..."
+	}
+	return s
+}
+
+// readPoints reads the occurrence table, places each record on the grid,
+// drops those outside the raster or on no-data, and thins duplicates.
+func (s *Study) readPoints() error {
+	o, g := s.o, s.grid
+	geographic := true
+	var toLL *godal.Transform
+	if o.OccurrencesCRS != "" {
+		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
+		if err != nil {
+			return fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %v", o.OccurrencesCRS, err))
+		}
+		geographic = sr.Geographic()
+		// Any CRS other than WGS84 itself is transformed, a geographic one
+		// on another datum (e.g. EPSG:4258) included.
+		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
+		if !sr.IsSame(wgs) {
+			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
+				return fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %v", o.OccurrencesCRS, err))
+			}
+			defer toLL.Close()
+		}
+	}
+	recs, err := inputs.ReadOccurrences(o.Occurrences, geographic)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	n := len(recs)
+	// Projected coordinates that all fit in degree ranges are most likely
+	// degrees given the wrong --occurrences-crs (used for a hint).
+	s.rawDegrees = !geographic
+	for _, r := range recs {
+		if math.Abs(r.X) > 180 || math.Abs(r.Y) > 90 {
+			s.rawDegrees = false
+		}
+	}
+	lons := make([]float64, n)
+	lats := make([]float64, n)
+	for i, r := range recs {
+		lons[i], lats[i] = r.X, r.Y
+	}
+	if toLL != nil {
+		okv := make([]bool, n)
+		if err := toLL.TransformEx(lons, lats, nil, okv); err != nil {
+			return fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %v", o.Occurrences, o.OccurrencesCRS, err))
+		}
+	}
+	xs := make([]float64, n)
+	ys := make([]float64, n)
+	g.FromLonLat(lons, lats, xs, ys)
+	s.points = make([]report.Point, n)
+	s.lonlat = make([]extent.LonLat, n)
+	s.cell = make([]int, n)
+	for i, r := range recs {
+		p := report.Point{ID: r.Line, Role: string(r.Role), Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: report.PointScored}
+		s.lonlat[i] = extent.LonLat{Lon: lons[i], Lat: lats[i]}
+		s.cell[i] = -1
+		if col, row, ok := g.CellOf(xs[i], ys[i]); ok {
+			p.Row, p.Col = row, col
+			s.cell[i] = row*g.Width + col
+		} else {
+			p.Status = report.PointOutsideRaster
+		}
+		s.points[i] = p
+	}
+	// Points on no-data of the reference (first) model, from point reads.
+	// A run learns the valid cells in its first scoring pass; 'extents',
+	// which scores nothing, reads them once here.
+	r, err := pass.Open(s.models[0].Path)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	defer r.Close()
+	_, pointValid, err := r.Sample(g, s.cell)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	if o.ExtentsOnly {
+		bar := s.progress("reading "+s.models[0].Name+" (valid cells)", r.Blocks())
+		s.valid, err = r.ReadValid(g, bar.update)
+		bar.finish()
+		if err != nil {
+			return fault.BadInput(err)
+		}
+	}
+	var outside, nodata []string
+	for i := range s.points {
+		p := &s.points[i]
+		if p.Status == report.PointOutsideRaster {
+			outside = append(outside, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
+			s.cell[i] = -1
+			continue
+		}
+		if !pointValid[i] {
+			p.Status = report.PointNoData
+			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
+			s.cell[i] = -1
+		}
+	}
+	if len(outside) > 0 {
+		s.warn(fmt.Sprintf("%d occurrence(s) outside the raster, not scored: %s", len(outside), listSome(outside, 10)))
+	}
+	if len(nodata) > 0 {
+		s.warn(fmt.Sprintf("%d occurrence(s) on no-data cells of %s, not scored: %s", len(nodata), s.models[0].Name, listSome(nodata, 10)))
+	}
+	// Thinning: one presence per cell and role, the first line kept.
+	if !o.NoThin {
+		seen := map[[2]int]int{}
+		thinned := 0
+		var pairs []string
+		for i := range s.points {
+			p := &s.points[i]
+			if s.cell[i] < 0 {
+				continue
+			}
+			key := [2]int{s.cell[i], roleIndex(p.Role)}
+			if first, dup := seen[key]; dup {
+				p.Status = report.PointThinned
+				thinned++
+				pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role))
+				s.cell[i] = -1
+				continue
+			}
+			seen[key] = i
+		}
+		if thinned > 0 {
+			s.logf("thinned: %s", listSome(pairs, 10))
+			s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", thinned))
+		}
+	}
+	c := &s.res.PointCounts
+	for _, p := range s.points {
+		switch p.Status {
+		case report.PointScored:
+			if p.Role == "train" {
+				c.Train++
+			} else {
+				c.Test++
+			}
+		case report.PointThinned:
+			c.Thinned++
+		case report.PointOutsideRaster:
+			c.OutsideRaster++
+		case report.PointNoData:
+			c.NoData++
+		}
+	}
+	if c.Test == 0 {
+		return fault.BadInput(s.noTestPoint(r))
+	}
+	if c.Train == 0 {
+		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
+	}
+	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
+	return nil
+}
+
+// noTestPoint explains why no test point can be scored, blaming the input
+// that is at fault: a raster without data, points outside the raster (with
+// a hint when degrees were given a projected --occurrences-crs, or the
+// other way round), or test points on no-data cells.
+func (s *Study) noTestPoint(r *pass.Raster) error {
+	o, c := s.o, s.res.PointCounts
+	if c.NoData > 0 {
+		if _, _, ok, err := r.ExactRange(); err == nil && !ok {
+			return fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", s.models[0].Name, pass.ErrNoData, r.Path)
+		}
+	}
+	msg := fmt.Sprintf("%s: no test point falls on a cell with data of %s (%s); nothing can be scored", o.Occurrences, s.models[0].Name, s.models[0].Path)
+	if c.OutsideRaster > 0 && c.NoData == 0 && c.Thinned == 0 {
+		msg = fmt.Sprintf("%s: every point lies outside the raster %s; nothing can be scored", o.Occurrences, s.models[0].Path)
+		if o.OccurrencesCRS != "" && s.rawDegrees {
+			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
+		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
+			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
+		} else {
+			msg += "; check that the points and the raster cover the same area"
+		}
+	}
+	return errors.New(msg)
+}
+
+func roleIndex(r string) int {
+	if r == "train" {
+		return 0
+	}
+	return 1
+}
+
+func listSome(items []string, n int) string {
+	if len(items) <= n {
+		return strings.Join(items, "; ")
+	}
+	return strings.Join(items[:n], "; ") + fmt.Sprintf("; and %d more (see results.json points)", len(items)-n)
+}
+
+func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
+
+// checksums records the SHA-256 of every input file.
+func (s *Study) checksums() error {
+	o := s.o
+	add := func(role, path string) error {
+		sum, err := fileSHA256(path)
+		if err != nil {
+			return fault.BadInput(fmt.Errorf("%s: %w", role, err))
+		}
+		s.res.Inputs = append(s.res.Inputs, report.Input{Role: role, Path: s.recordedPath(path), SHA256: sum})
+		return nil
+	}
+	for _, m := range s.models {
+		role := "model:" + m.Name
+		if m.Null {
+			role = "null:" + m.Name
+		}
+		if err := add(role, m.Path); err != nil {
+			return err
+		}
+	}
+	if err := add("occurrences", o.Occurrences); err != nil {
+		return err
+	}
+	if err := add("region", o.Region); err != nil {
+		return err
+	}
+	if o.Ecoregions != "" {
+		if err := add("ecoregions", o.Ecoregions); err != nil {
+			return err
+		}
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		if err := add("extra:"+name, path); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func fileSHA256(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", err
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", fmt.Errorf("read %s: %w", path, err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// scoredPoints returns lon/lat and cells of the scored points of role.
+func (s *Study) scoredPoints(role string) ([]extent.LonLat, []int, []int) {
+	var ll []extent.LonLat
+	var cells, idx []int
+	for i, p := range s.points {
+		if p.Status == report.PointScored && p.Role == role {
+			ll = append(ll, s.lonlat[i])
+			cells = append(cells, s.cell[i])
+			idx = append(idx, i)
+		}
+	}
+	return ll, cells, idx
+}
