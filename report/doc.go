@@ -61,4 +61,21 @@
 // dash and shape so that greyscale prints work.
 // methods.md holds a methods paragraph and a reply to a reviewer filled
 // with the run's numbers. Output is deterministic for the same Results.
+//
+// # Summary across studies
+//
+// A batch of studies (batch*.go) is summarised from each study's analysed
+// Results, or the error that stopped it:
+//
+//	s, _ := Summarize([]StudyResult{...})
+//	WriteSummary(dir, s) // summary.csv, summary_verdicts.csv, summary.html,
+//	                     // summary_methods.md, summary_figures/extent_effect.*
+//
+// It makes no inference of its own: the verdicts and intervals are each
+// study's (Sensitivity), and the counts add them up. A study is
+// extent-sensitive for AUC when its AUC verdict is (at least one model
+// has a paired difference from the base extent whose 95% interval lies
+// wholly beyond the tolerance); see ExtentSensitiveDefinition. The figure
+// shows each study's extent effect, the paired AUC difference from the
+// base extent of largest magnitude, with its interval, studies sorted.
 package report

@@ -1,0 +1,433 @@
+package report
+
+import (
+	"cmp"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+)
+
+// StudyResult is one study of a batch as the summary across studies sees
+// it: its id and either its results or the error that stopped it.
+type StudyResult struct {
+	// ID names the study (its folder in the batch's output).
+	ID string
+	// Results are the study's results; nil when Err is set. Analyze is
+	// run on them when their Sensitivity is missing.
+	Results *Results
+	// Err is why the study gave no results.
+	Err error
+	// Report is the path of the study's report.html relative to the
+	// summary page ("" when there is none).
+	Report string
+}
+
+// Batch verdict names: the values of ModelVerdict.Verdict and
+// Verdict.Verdict, which the summary counts.
+const (
+	VerdictSensitive    = "extent-sensitive"
+	VerdictRobust       = "robust"
+	VerdictUndetermined = "undetermined"
+)
+
+// BatchSummary is the summary across the studies of a batch. Studies keep
+// the order they were given in (the study table's order), rows follow
+// them, models in each study's order. It holds no inference of its own:
+// every verdict and interval is a study's own (Sensitivity), and the
+// counts add them up.
+type BatchSummary struct {
+	// Software names the program, from the first study with results.
+	Software Software
+	// Studies lists every study, failed ones included.
+	Studies []StudySummary
+	// Rows holds one row per study and model (failed studies have none).
+	Rows []BatchRow
+	// Verdicts holds every study's per-model verdict of every metric.
+	Verdicts []BatchVerdict
+	// Counts adds up the AUC verdicts and the model-above-null readings.
+	Counts BatchCounts
+	// Tolerances lists the distinct AUC tolerances of the studies,
+	// ascending.
+	Tolerances []float64
+}
+
+// StudySummary is one study of a batch.
+type StudySummary struct {
+	ID     string
+	OK     bool
+	Error  string // why the study failed; "" when OK
+	Report string // relative path of its report.html, "" for none
+	// Verdict is the study's AUC verdict (Sensitivity.Verdicts, metric
+	// "auc"): extent-sensitive when AUC is for at least one model, robust
+	// when it is for every model, undetermined otherwise.
+	Verdict    string
+	Models     []string
+	BaseExtent string
+	Extents    int // scored extents
+}
+
+// BatchRow is one model of one study: its AUC across the study's scored
+// extents, its extent effect and its standing against a null. Fields
+// whose Defined flag is false are 0.
+type BatchRow struct {
+	Study      string
+	Model      string
+	BaseExtent string
+	// Extents is the number of extents AUC was scored on.
+	Extents int
+	// AUCBase is AUC on the base extent.
+	AUCBase        float64
+	AUCBaseDefined bool
+	// AUCMin, AUCMax and AUCRange describe AUC across the scored extents
+	// (Sensitivity.Spreads).
+	AUCMin, AUCMax       float64
+	MinExtent, MaxExtent string
+	AUCRange             float64
+	// Effect is the extent effect: of the paired AUC differences
+	// "extent minus base extent" on the test points both share
+	// (Sensitivity.ModelVerdicts), the one of largest magnitude, with its
+	// 95% interval from the placements.
+	EffectDefined         bool
+	EffectExtent          string
+	Effect                float64
+	EffectLow, EffectHigh float64
+	// Tolerance and Verdict are the model's AUC tolerance and verdict
+	// (VerdictSensitive, VerdictRobust or VerdictUndetermined).
+	Tolerance float64
+	Verdict   string
+	// Null names the null the model is compared with on the base extent
+	// (see baseNullComparison); "" when the study scored none. NullDiff
+	// is AUC of the model minus the null's on the test points both score,
+	// with its 95% interval from the placements, and NullReading its
+	// reading (ReadingAbove, ReadingNotAbove, ReadingBelow or
+	// ReadingUndefined).
+	Null              string
+	NullDefined       bool
+	NullDiff          float64
+	NullLow, NullHigh float64
+	NullReading       string
+}
+
+// BatchVerdict is one study's verdict on one metric for one model, with
+// the difference from the base extent that the verdict names (the largest
+// by magnitude).
+type BatchVerdict struct {
+	Study, Model, Metric, Label string
+	Tolerance                   float64
+	Verdict                     string
+	BaseExtent                  string
+	Defined                     bool
+	Extent                      string
+	Diff, Low, High             float64
+	Method                      string
+}
+
+// BatchCounts adds up the studies' own verdicts.
+type BatchCounts struct {
+	// Studies given, with results, failed.
+	Studies, Succeeded, Failed int
+	// Studies with results, by their AUC verdict.
+	Sensitive, Robust, Undetermined int
+	// Study x model pairs, by the model's AUC verdict.
+	Pairs, PairsSensitive, PairsRobust, PairsUndetermined int
+	// Study x model pairs compared with a null on the base extent, by
+	// reading (undefined ones are in NullPairs only).
+	NullPairs, Above, NotAbove, Below int
+}
+
+// Summarize builds the summary across studies. Studies without results
+// must carry an error and are listed as failed; results without a
+// sensitivity analysis are analysed first (Analyze, which fills
+// r.Sensitivity). It returns an error for a programmer's mistake only:
+// an empty or repeated id, or a study with neither results nor error.
+func Summarize(studies []StudyResult) (*BatchSummary, error) {
+	s := &BatchSummary{Studies: []StudySummary{}, Rows: []BatchRow{}, Verdicts: []BatchVerdict{}}
+	seen := map[string]bool{}
+	for i, st := range studies {
+		if st.ID == "" {
+			return nil, fmt.Errorf("report: Summarize: study %d has no id", i+1)
+		}
+		if seen[strings.ToLower(st.ID)] {
+			return nil, fmt.Errorf("report: Summarize: study id %q given twice", st.ID)
+		}
+		seen[strings.ToLower(st.ID)] = true
+		s.Counts.Studies++
+		ss := StudySummary{ID: st.ID, Report: st.Report, Models: []string{}}
+		switch {
+		case st.Err != nil:
+			ss.Error = oneLine(st.Err.Error())
+		case st.Results == nil:
+			return nil, fmt.Errorf("report: Summarize: study %s has neither results nor an error", st.ID)
+		default:
+			if st.Results.Sensitivity == nil {
+				if err := Analyze(st.Results); err != nil {
+					ss.Error = oneLine(err.Error())
+					break
+				}
+			}
+			ss.OK = true
+		}
+		if !ss.OK {
+			ss.Report = ""
+			s.Counts.Failed++
+			s.Studies = append(s.Studies, ss)
+			continue
+		}
+		s.Counts.Succeeded++
+		r := st.Results
+		if s.Software == (Software{}) {
+			s.Software = r.Software
+		}
+		sens := r.Sensitivity
+		ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
+		ss.Models = append(ss.Models, sens.ModelNames...)
+		ss.Verdict = VerdictUndetermined
+		for _, v := range sens.Verdicts {
+			if v.Metric == "auc" {
+				ss.Verdict = v.Verdict
+			}
+		}
+		s.Studies = append(s.Studies, ss)
+		s.Counts.add(ss.Verdict, &s.Counts.Sensitive, &s.Counts.Robust, &s.Counts.Undetermined)
+		for _, model := range sens.ModelNames {
+			row := studyRow(r, st.ID, model)
+			s.Rows = append(s.Rows, row)
+			s.Counts.Pairs++
+			s.Counts.add(row.Verdict, &s.Counts.PairsSensitive, &s.Counts.PairsRobust, &s.Counts.PairsUndetermined)
+			if row.Null != "" {
+				s.Counts.NullPairs++
+				switch row.NullReading {
+				case ReadingAbove:
+					s.Counts.Above++
+				case ReadingNotAbove:
+					s.Counts.NotAbove++
+				case ReadingBelow:
+					s.Counts.Below++
+				}
+			}
+			if !slices.Contains(s.Tolerances, row.Tolerance) {
+				s.Tolerances = append(s.Tolerances, row.Tolerance)
+			}
+		}
+		for _, mv := range sens.ModelVerdicts {
+			s.Verdicts = append(s.Verdicts, batchVerdict(st.ID, mv))
+		}
+	}
+	slices.Sort(s.Tolerances)
+	return s, nil
+}
+
+// add counts verdict v into the matching counter.
+func (c *BatchCounts) add(v string, sensitive, robust, undetermined *int) {
+	switch v {
+	case VerdictSensitive:
+		*sensitive++
+	case VerdictRobust:
+		*robust++
+	default:
+		*undetermined++
+	}
+}
+
+// oneLine joins the lines of an error message with "; ".
+func oneLine(s string) string {
+	lines := strings.FieldsFunc(s, func(r rune) bool { return r == '\n' || r == '\r' })
+	for i := range lines {
+		lines[i] = strings.TrimSpace(lines[i])
+	}
+	return strings.Join(slices.DeleteFunc(lines, func(l string) bool { return l == "" }), "; ")
+}
+
+// studyRow builds the row of one model of an analysed study.
+func studyRow(r *Results, id, model string) BatchRow {
+	sens := r.Sensitivity
+	row := BatchRow{Study: id, Model: model, BaseExtent: sens.BaseExtent, Verdict: VerdictUndetermined, NullReading: ReadingUndefined}
+	for _, sp := range sens.Spreads {
+		if sp.Metric == "auc" && sp.Model == model {
+			row.Extents = sp.N
+			if sp.N > 0 {
+				row.AUCMin, row.AUCMax, row.AUCRange = sp.Min, sp.Max, sp.Range
+				row.MinExtent, row.MaxExtent = sp.MinExtent, sp.MaxExtent
+			}
+		}
+	}
+	for _, mv := range sens.ModelVerdicts {
+		if mv.Metric != "auc" || mv.Model != model {
+			continue
+		}
+		row.Tolerance, row.Verdict = mv.Tolerance, mv.Verdict
+		row.AUCBase, row.AUCBaseDefined = mv.BaseValue, mv.BaseDefined
+		if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
+			d := mv.Diffs[mv.Largest]
+			row.EffectDefined, row.EffectExtent = true, d.Extent
+			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
+		}
+	}
+	if an := baseNullComparison(r, model); an != nil {
+		row.Null = an.Null
+		if g := an.gap(an.BaseExtent); g != nil && g.Defined {
+			row.NullDefined = true
+			row.NullDiff, row.NullLow, row.NullHigh = g.Diff, g.Low, g.High
+			row.NullReading = an.BaseReading
+		}
+	}
+	return row
+}
+
+// baseNullComparison picks the null a model is compared with in the
+// summary: the distance-only null when it was scored, else the first null
+// in Results.Models order (AUC only). Nil when the study has no null.
+func baseNullComparison(r *Results, model string) *AboveNull {
+	var first *AboveNull
+	for i := range r.Sensitivity.AboveNull {
+		an := &r.Sensitivity.AboveNull[i]
+		if an.Metric != "auc" || an.Model != model {
+			continue
+		}
+		if an.NullKind == NullDistance {
+			return an
+		}
+		if first == nil {
+			first = an
+		}
+	}
+	return first
+}
+
+// batchVerdict turns one model verdict into a summary row.
+func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
+	v := BatchVerdict{Study: study, Model: mv.Model, Metric: mv.Metric, Label: mv.Label, Tolerance: mv.Tolerance,
+		Verdict: mv.Verdict, BaseExtent: mv.Base}
+	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
+		d := mv.Diffs[mv.Largest]
+		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method = true, d.Extent, d.Diff, d.Low, d.High, d.Method
+	}
+	return v
+}
+
+// Models lists the model names of the summary, in order of first
+// appearance (study order, then each study's model order).
+func (s *BatchSummary) Models() []string {
+	var out []string
+	for _, row := range s.Rows {
+		if !slices.Contains(out, row.Model) {
+			out = append(out, row.Model)
+		}
+	}
+	return out
+}
+
+// EffectOrder returns the studies that have at least one defined extent
+// effect, sorted by their sort key ascending (ties by id): the study's
+// effect of largest magnitude among its models, with its sign. It is the
+// order of the figure's rows, from the bottom up.
+func (s *BatchSummary) EffectOrder() []string {
+	type keyed struct {
+		id  string
+		key float64
+	}
+	keys := map[string]*keyed{}
+	var out []*keyed
+	for _, row := range s.Rows {
+		if !row.EffectDefined {
+			continue
+		}
+		k := keys[row.Study]
+		if k == nil {
+			k = &keyed{id: row.Study, key: row.Effect}
+			keys[row.Study] = k
+			out = append(out, k)
+		} else if math.Abs(row.Effect) > math.Abs(k.key) {
+			k.key = row.Effect
+		}
+	}
+	slices.SortStableFunc(out, func(a, b *keyed) int {
+		if c := cmp.Compare(a.key, b.key); c != 0 {
+			return c
+		}
+		return strings.Compare(a.id, b.id)
+	})
+	ids := make([]string, len(out))
+	for i, k := range out {
+		ids[i] = k.id
+	}
+	return ids
+}
+
+// Files of a batch summary, written into the batch's output folder beside
+// the study folders. A study id must not equal one of them (ignoring case).
+const (
+	SummaryCSV      = "summary.csv"
+	SummaryVerdicts = "summary_verdicts.csv"
+	SummaryHTML     = "summary.html"
+	SummaryMethods  = "summary_methods.md"
+	SummaryFigures  = "summary_figures"
+	// EffectFigure is the base name of the extent-effect figure inside
+	// SummaryFigures (.svg, .pdf and .png).
+	EffectFigure = "extent_effect"
+)
+
+// SummaryNames lists the names WriteSummary creates in the batch folder.
+func SummaryNames() []string {
+	return []string{SummaryCSV, SummaryVerdicts, SummaryHTML, SummaryMethods, SummaryFigures}
+}
+
+// WriteSummary writes the summary across studies into dir (which exists):
+// SummaryCSV, SummaryVerdicts, SummaryMethods, SummaryHTML and the
+// extent-effect figure as SVG, PDF and PNG in SummaryFigures. Each file is
+// written atomically. The output depends only on s.
+func WriteSummary(dir string, s *BatchSummary) error {
+	if s == nil {
+		return errors.New("report: WriteSummary: nil summary")
+	}
+	if st, err := os.Stat(dir); err != nil {
+		return fmt.Errorf("report: summary folder: %w", err)
+	} else if !st.IsDir() {
+		return fmt.Errorf("report: summary folder %s is not a folder", dir)
+	}
+	var rows, verdicts strings.Builder
+	if err := s.WriteCSV(&rows); err != nil {
+		return err
+	}
+	if err := s.WriteVerdictsCSV(&verdicts); err != nil {
+		return err
+	}
+	files := []struct{ name, data string }{
+		{SummaryCSV, rows.String()},
+		{SummaryVerdicts, verdicts.String()},
+		{SummaryMethods, s.MethodsText()},
+	}
+	for _, f := range files {
+		if err := writeAtomic(filepath.Join(dir, f.name), []byte(f.data)); err != nil {
+			return err
+		}
+	}
+	var svg []byte
+	if f, ok := effectFigure(s); ok {
+		figDir := filepath.Join(dir, SummaryFigures)
+		if err := os.MkdirAll(figDir, 0o755); err != nil {
+			return fmt.Errorf("report: create %s: %w", figDir, err)
+		}
+		for _, format := range figureFormats {
+			data, err := render(f, format)
+			if err != nil {
+				return err
+			}
+			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data); err != nil {
+				return err
+			}
+			if format == "svg" {
+				svg = data
+			}
+		}
+	}
+	page, err := s.page(svg)
+	if err != nil {
+		return err
+	}
+	return writeAtomic(filepath.Join(dir, SummaryHTML), page)
+}

@@ -1,0 +1,171 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"slices"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Layout of the extent-effect figure (our choices): one row per study at
+// effectPitch when they fit under maxHeight, with effectFrame for the
+// title, legend and axis; below effectMinLabelPitch a row is too thin for
+// an 8 pt label (about 2.8 mm tall) and the study names are left off.
+const (
+	effectPitch         = 4.5 * vg.Millimeter
+	effectFrame         = 38 * vg.Millimeter
+	effectMinHeight     = 70 * vg.Millimeter
+	effectMinLabelPitch = 3.5 * vg.Millimeter
+)
+
+// effectLayout is the height of the figure for n rows and whether the
+// rows carry their study's name.
+func effectLayout(n int) (h vg.Length, labels bool) {
+	h = effectFrame + vg.Length(n)*effectPitch
+	h = min(max(h, effectMinHeight), maxHeight)
+	return h, (h-effectFrame)/vg.Length(max(n, 1)) >= effectMinLabelPitch
+}
+
+// effectFigure draws the extent effect across studies: one row per study
+// (EffectOrder, the smallest effect at the bottom), one mark per model at
+// its extent effect (the paired AUC difference from the base extent of
+// largest magnitude) with its 95% interval as a horizontal bar, a line at
+// 0 and, when every study used the same tolerance T, the band -T..+T
+// shaded. False when no study has a defined effect.
+func effectFigure(s *BatchSummary) (figure, bool) {
+	order := s.EffectOrder()
+	if len(order) == 0 {
+		return figure{}, false
+	}
+	h, labels := effectLayout(len(order))
+	f := figure{Name: EffectFigure, Title: "Extent effect across studies", W: twoColumns, H: h}
+	f.Caption = "Each row is a study, sorted by its extent effect (the model with the effect of largest magnitude sets the order), smallest at the bottom. " +
+		"A mark is a model's paired AUC difference from the study's base extent of largest magnitude, on the test points both extents hold; " +
+		"the bar is its 95% interval from the per-point placements."
+	if len(s.Tolerances) == 1 {
+		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s; a bar wholly outside it makes the model's AUC extent-sensitive in that study.", fmtG(s.Tolerances[0]))
+	}
+	if !labels {
+		f.Caption += " There are too many studies to name each row; summary.csv lists them."
+	}
+	f.draw = func(c draw.Canvas) error {
+		p, items, err := effectPlot(s, order, labels, f.W-vg.Points(30))
+		if err != nil {
+			return err
+		}
+		rest := c
+		if len(items) > 1 {
+			legend := legendRows(items, f.W)
+			var top draw.Canvas
+			top, rest = splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
+			drawLegendRows(top, legend)
+		}
+		p.Draw(rest)
+		return nil
+	}
+	return f, true
+}
+
+// xErrPoints pairs points with asymmetric horizontal error offsets.
+type xErrPoints struct {
+	plotter.XYs
+	plotter.XErrors
+}
+
+// effectPlot builds the panel of effectFigure and its legend (one item
+// per model).
+func effectPlot(s *BatchSummary, order []string, labels bool, w vg.Length) (*plot.Plot, []legendItem, error) {
+	models := s.Models()
+	row := map[string]int{}
+	for i, id := range order {
+		row[id] = i
+	}
+	p := newPlot("AUC: largest paired difference from the base extent, per study", w)
+	p.X.Label.Text = "AUC difference (extent − base extent)"
+	p.Y.Label.Text = "studies, sorted by effect"
+	// Inside a row, the study's marks sit in slots 0.25 apart (our
+	// choice), centred on the row: a study with one model has its mark on
+	// the row's line.
+	inRow := map[string][]string{}
+	for _, r := range s.Rows {
+		if r.EffectDefined {
+			inRow[r.Study] = append(inRow[r.Study], r.Model)
+		}
+	}
+	offset := func(study, model string) float64 {
+		ms := inRow[study]
+		return (float64(slices.Index(ms, model)) - float64(len(ms)-1)/2) * -0.25
+	}
+	bottom, top := -0.6, float64(len(order))-0.4
+	if len(s.Tolerances) == 1 {
+		// The band goes first, under the marks.
+		t := s.Tolerances[0]
+		band, err := plotter.NewPolygon(plotter.XYs{{X: -t, Y: bottom}, {X: t, Y: bottom}, {X: t, Y: top}, {X: -t, Y: top}})
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+		}
+		band.Color = effectBandGrey
+		band.LineStyle.Width = 0
+		p.Add(band)
+	}
+	lo, hi := 0.0, 0.0
+	var items []legendItem
+	for j, model := range models {
+		var pts xErrPoints
+		for _, r := range s.Rows {
+			i, ok := row[r.Study]
+			if r.Model != model || !r.EffectDefined || !ok {
+				continue
+			}
+			y := float64(i) + offset(r.Study, r.Model)
+			pts.XYs = append(pts.XYs, plotter.XY{X: r.Effect, Y: y})
+			pts.XErrors = append(pts.XErrors, struct{ Low, High float64 }{Low: math.Max(0, r.Effect-r.EffectLow), High: math.Max(0, r.EffectHigh-r.Effect)})
+			lo, hi = math.Min(lo, math.Min(r.EffectLow, r.Effect)), math.Max(hi, math.Max(r.EffectHigh, r.Effect))
+		}
+		if len(pts.XYs) == 0 {
+			continue
+		}
+		eb, err := plotter.NewXErrorBars(pts)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+		}
+		eb.LineStyle = lineStyle(modelColor(j), 0.8, nil)
+		eb.CapWidth = vg.Points(2.5)
+		sc, err := plotter.NewScatter(pts.XYs)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+		}
+		sc.GlyphStyle = markerStyle(j)
+		p.Add(eb, sc)
+		items = append(items, legendItem{model, glyphThumb{gs: sc.GlyphStyle}})
+	}
+	if len(s.Tolerances) == 1 {
+		t := s.Tolerances[0]
+		lo, hi = math.Min(lo, -t), math.Max(hi, t)
+	}
+	pad := math.Max((hi-lo)*0.05, 1e-3)
+	p.X.Min, p.X.Max = lo-pad, hi+pad
+	p.Y.Min, p.Y.Max = bottom, top
+	zero, err := plotter.NewLine(plotter.XYs{{X: 0, Y: bottom}, {X: 0, Y: top}})
+	if err != nil {
+		return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+	}
+	zero.LineStyle = draw.LineStyle{Color: nullZeroGrey, Width: vg.Points(0.8)}
+	p.Add(zero)
+	var ticks []plot.Tick
+	if labels {
+		for i, id := range order {
+			ticks = append(ticks, plot.Tick{Value: float64(i), Label: id})
+		}
+	}
+	p.Y.Tick.Marker = plot.ConstantTicks(ticks)
+	return p, items, nil
+}
+
+// effectBandGrey shades the equivalence band of the extent-effect figure.
+var effectBandGrey = color.Gray{Y: 232}

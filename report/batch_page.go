@@ -1,0 +1,130 @@
+package report
+
+import (
+	"bytes"
+	_ "embed"
+	"fmt"
+	"html/template"
+	"net/url"
+	"strings"
+)
+
+//go:embed batch.html.tmpl
+var batchPageSource string
+
+// batchPage is the summary page's template, parsed once.
+var batchPage = template.Must(template.New("summary").Parse(batchPageSource))
+
+// pageRow is one line of the studies table: a study and model, or a
+// failed study.
+type pageRow struct {
+	Study, Link, Model, Base                  string
+	Failed                                    bool
+	Error                                     string
+	Extents                                   int
+	AUCBase, Range, Effect, Interval, Verdict string
+	Null, NullInterval, Reading               string
+}
+
+// pageData is what the template reads.
+type pageData struct {
+	Software      string
+	Counts        BatchCounts
+	CountSentence string
+	Definition    string
+	SVG           template.HTML
+	FigureName    string
+	Caption       string
+	NoEffect      []string
+	Rows          []pageRow
+	Failed        []StudySummary
+	Methods       []textSection
+}
+
+// studyLink turns a study's relative report path into a link: each path
+// element escaped, so that an id never breaks out of the attribute or
+// turns into a scheme.
+func studyLink(rel string) string {
+	if rel == "" {
+		return ""
+	}
+	parts := strings.Split(rel, "/")
+	for i, p := range parts {
+		parts[i] = url.PathEscape(p)
+	}
+	return "./" + strings.Join(parts, "/")
+}
+
+// page renders summary.html with the figure's SVG (nil when there is no
+// figure) inlined.
+func (s *BatchSummary) page(svg []byte) ([]byte, error) {
+	sw := strings.TrimSpace(s.Software.Name + " " + s.Software.Version)
+	if sw == "" {
+		sw = "areasweep"
+	}
+	d := pageData{Software: sw, Counts: s.Counts, CountSentence: s.CountSentence(), Definition: ExtentSensitiveDefinition,
+		FigureName: EffectFigure, Methods: s.methodsSections()}
+	if f, ok := effectFigure(s); ok && svg != nil {
+		d.SVG = template.HTML(inlineFigureSVG(svg, "fig-"+EffectFigure, f.Title))
+		d.Caption = f.Caption
+	}
+	drawn := map[string]bool{}
+	for _, id := range s.EffectOrder() {
+		drawn[id] = true
+	}
+	next := 0
+	for _, st := range s.Studies {
+		if !st.OK {
+			d.Failed = append(d.Failed, st)
+			d.Rows = append(d.Rows, pageRow{Study: st.ID, Failed: true, Error: st.Error})
+			continue
+		}
+		if !drawn[st.ID] {
+			d.NoEffect = append(d.NoEffect, st.ID)
+		}
+		for ; next < len(s.Rows) && s.Rows[next].Study == st.ID; next++ {
+			d.Rows = append(d.Rows, pageRowOf(s.Rows[next], studyLink(st.Report)))
+		}
+	}
+	var b bytes.Buffer
+	if err := batchPage.Execute(&b, d); err != nil {
+		return nil, fmt.Errorf("report: write %s: %w", SummaryHTML, err)
+	}
+	return b.Bytes(), nil
+}
+
+// pageRowOf formats one study and model for the table.
+func pageRowOf(r BatchRow, link string) pageRow {
+	const none = "–"
+	pr := pageRow{Study: r.Study, Link: link, Model: r.Model, Base: r.BaseExtent, Extents: r.Extents, Verdict: r.Verdict,
+		AUCBase: none, Range: none, Effect: none, Interval: none, Null: none, NullInterval: none, Reading: none}
+	if r.AUCBaseDefined {
+		pr.AUCBase = f3(r.AUCBase)
+	}
+	if r.Extents > 0 {
+		pr.Range = f3(r.AUCMin) + "–" + f3(r.AUCMax)
+	}
+	if r.EffectDefined {
+		pr.Effect = signed3(r.Effect) + " (" + r.EffectExtent + ")"
+		pr.Interval = signed3(r.EffectLow) + " to " + signed3(r.EffectHigh)
+	}
+	if r.Null != "" {
+		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
+	}
+	if r.NullDefined {
+		pr.Null = signed3(r.NullDiff) + " (" + r.Null + ")"
+		pr.NullInterval = signed3(r.NullLow) + " to " + signed3(r.NullHigh)
+	}
+	return pr
+}
+
+// inlineFigureSVG prepares an SVG document for inlining: drops what comes
+// before the root element and gives it an id, a class, a role and a label.
+func inlineFigureSVG(svg []byte, id, label string) string {
+	s := string(svg)
+	if i := strings.Index(s, "<svg"); i >= 0 {
+		s = s[i:]
+	}
+	attrs := fmt.Sprintf(`<svg id="%s" class="figure" role="img" aria-label="%s"`, template.HTMLEscapeString(id), template.HTMLEscapeString(label))
+	return strings.Replace(s, "<svg", attrs, 1)
+}

@@ -1,0 +1,404 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/plot/vg"
+)
+
+// effect is one hand-made paired AUC difference from the base extent.
+type effect struct {
+	extent          string
+	diff, low, high float64
+}
+
+// handModel describes one model of a hand-built study: its AUC on each
+// extent and its differences from the base extent.
+type handModel struct {
+	name    string
+	aucs    map[string]float64 // extent -> AUC
+	effects []effect
+	// nullDiff, when set, is the AUC difference from the distance-only
+	// null on the base extent, with its interval.
+	null *effect
+}
+
+// handStudy builds the Results of one study by hand: extents "base" and
+// the extents of its models' effects, the AUC spreads, the model verdicts
+// judged by the package's own rule (modelVerdict's positions against the
+// tolerance, summed by verdictFor) and the model-above-null records.
+// Nothing is computed from cells; the summary must only add these up.
+func handStudy(tol float64, models ...handModel) *Results {
+	r := &Results{SchemaVersion: SchemaVersion, Software: Software{Name: "areasweep", Version: "test"}}
+	s := &Sensitivity{BaseExtent: "base"}
+	m := MetricInfo{Key: "auc", Label: "AUC", Kind: "auc", HigherIsBetter: true, Tolerance: tol}
+	var mvs []ModelVerdict
+	for _, hm := range models {
+		s.ModelNames = append(s.ModelNames, hm.name)
+		sp := Spread{Metric: "auc", Model: hm.name}
+		ids := []string{"base"}
+		for _, e := range hm.effects {
+			ids = append(ids, e.extent)
+		}
+		for _, id := range ids {
+			v := hm.aucs[id]
+			if sp.N == 0 || v < sp.Min {
+				sp.Min, sp.MinExtent = v, id
+			}
+			if sp.N == 0 || v > sp.Max {
+				sp.Max, sp.MaxExtent = v, id
+			}
+			sp.N++
+		}
+		sp.Range = sp.Max - sp.Min
+		s.Spreads = append(s.Spreads, sp)
+		mv := ModelVerdict{Metric: "auc", Label: "AUC", Model: hm.name, Tolerance: tol, Base: "base", BaseValue: hm.aucs["base"], BaseDefined: true,
+			Verdict: VerdictUndetermined, Largest: -1}
+		outside, inside := 0, 0
+		for i, e := range hm.effects {
+			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
+				Position: position(e.low, e.high, tol)}
+			mv.Diffs = append(mv.Diffs, d)
+			if mv.Largest < 0 || math.Abs(e.diff) > math.Abs(mv.Diffs[mv.Largest].Diff) {
+				mv.Largest = i
+			}
+			switch d.Position {
+			case "outside":
+				outside++
+			case "inside":
+				inside++
+			}
+		}
+		switch {
+		case outside > 0:
+			mv.Verdict = VerdictSensitive
+		case len(mv.Diffs) > 0 && inside == len(mv.Diffs):
+			mv.Verdict = VerdictRobust
+		}
+		mvs = append(mvs, mv)
+		if hm.null != nil {
+			n := hm.null
+			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
+				BaseReading: gapReading(n.low, n.high),
+				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: gapReading(n.low, n.high)}}}
+			s.AboveNull = append(s.AboveNull, an)
+		}
+	}
+	s.ModelVerdicts = mvs
+	s.Verdicts = []Verdict{verdictFor(m, mvs)}
+	s.ScoredExtents = []string{"base", "wide"}
+	r.Sensitivity = s
+	return r
+}
+
+// handBatch is the batch the tests share. The expected verdicts follow
+// from the rule with T = 0.02 (DefaultToleranceAUC): an interval wholly
+// beyond ±0.02 makes a model extent-sensitive, all inside makes it robust.
+//
+//	alpha  m1 +0.080 (0.050..0.110)  outside        -> sensitive
+//	beta   m1 +0.005 (-0.004..0.014) inside         -> robust
+//	gamma  m1 -0.030 (-0.070..0.010) overlapping    -> undetermined
+//	delta  failed
+//	eps    m1 +0.060 (0.030..0.090) outside, m2 -0.070 (-0.090..-0.050)
+//	       outside; a study with two models         -> sensitive
+//	zeta   m2 +0.010 (-0.005..0.015) inside         -> robust
+func handBatch() []StudyResult {
+	const T = DefaultToleranceAUC
+	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
+	return []StudyResult{
+		{ID: "alpha", Report: "alpha/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}})},
+		{ID: "beta", Report: "beta/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.70, 0.705),
+			effects: []effect{{"wide", 0.005, -0.004, 0.014}}, null: &effect{"base", 0.01, -0.02, 0.04}})},
+		{ID: "gamma", Report: "gamma/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.75, 0.72),
+			effects: []effect{{"wide", -0.03, -0.07, 0.01}}})},
+		{ID: "delta", Err: errors.New("pipeline: open <models>/m1.tif: no such file\nsecond line")},
+		{ID: "eps", Report: "eps/report.html", Results: handStudy(T,
+			handModel{name: "m1", aucs: auc(0.81, 0.87), effects: []effect{{"wide", 0.06, 0.03, 0.09}}},
+			handModel{name: "m2", aucs: auc(0.79, 0.72), effects: []effect{{"wide", -0.07, -0.09, -0.05}}, null: &effect{"base", -0.05, -0.08, -0.02}})},
+		{ID: "zeta", Report: "zeta/report.html", Results: handStudy(T, handModel{name: "m2", aucs: auc(0.66, 0.67),
+			effects: []effect{{"wide", 0.01, -0.005, 0.015}}})},
+	}
+}
+
+// TestSummarizeCounts checks the counts against the verdicts worked out
+// by hand in handBatch's comment.
+func TestSummarizeCounts(t *testing.T) {
+	s, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := BatchCounts{Studies: 6, Succeeded: 5, Failed: 1,
+		Sensitive: 2, Robust: 2, Undetermined: 1, // alpha, eps | beta, zeta | gamma
+		Pairs: 6, PairsSensitive: 3, PairsRobust: 2, PairsUndetermined: 1,
+		NullPairs: 3, Above: 1, NotAbove: 1, Below: 1} // alpha above, beta includes 0, eps m2 below
+	if s.Counts != want {
+		t.Errorf("counts %+v\nwant   %+v", s.Counts, want)
+	}
+	if got, want := s.CountSentence(), "AUC was extent-sensitive for 2 of 5 studies, robust for 2 and undetermined for 1. 1 further study failed to run and is not counted."; got != want {
+		t.Errorf("count sentence %q\nwant %q", got, want)
+	}
+	verdicts := map[string]string{}
+	for _, st := range s.Studies {
+		verdicts[st.ID] = st.Verdict
+	}
+	for id, v := range map[string]string{"alpha": VerdictSensitive, "beta": VerdictRobust, "gamma": VerdictUndetermined, "eps": VerdictSensitive, "zeta": VerdictRobust, "delta": ""} {
+		if verdicts[id] != v {
+			t.Errorf("study %s: verdict %q, want %q", id, verdicts[id], v)
+		}
+	}
+	if !slices.Equal(s.Tolerances, []float64{DefaultToleranceAUC}) {
+		t.Errorf("tolerances %v", s.Tolerances)
+	}
+	if got := s.Models(); !slices.Equal(got, []string{"m1", "m2"}) {
+		t.Errorf("models %v", got)
+	}
+	// The median of the six effects is (0.005 + 0.01) / 2 = 0.0075, which
+	// is 0.00749... in float64 and prints as +0.007.
+	text := s.MethodsText()
+	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition, "Counted by study and model (6 pairs), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
+		"above the null beyond noise for 1 of 3 study-model pairs, within noise of it for 1 and below it for 1.",
+		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
+		"ran from -0.070 (study eps, model m2, extent wide) to +0.080 (study alpha, model m1, extent wide), median +0.007 over 6 study-model pairs", hijmans2012} {
+		if !strings.Contains(text, want) {
+			t.Errorf("methods text lacks %q:\n%s", want, text)
+		}
+	}
+}
+
+// TestSummaryCSV reads summary.csv back: header, one row per study and
+// model in the table's order, the failed study with its error, and the
+// numbers of one row in full precision.
+func TestSummaryCSV(t *testing.T) {
+	s, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := s.WriteCSV(&b); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(recs[0], summaryColumns) {
+		t.Fatalf("header %v", recs[0])
+	}
+	col := map[string]int{}
+	for i, c := range recs[0] {
+		col[c] = i
+	}
+	var keys []string
+	for _, rec := range recs[1:] {
+		keys = append(keys, rec[col["study"]]+"/"+rec[col["model"]]+"/"+rec[col["status"]])
+	}
+	if want := []string{"alpha/m1/ok", "beta/m1/ok", "gamma/m1/ok", "delta//failed", "eps/m1/ok", "eps/m2/ok", "zeta/m2/ok"}; !slices.Equal(keys, want) {
+		t.Errorf("rows %v, want %v", keys, want)
+	}
+	failed := recs[4]
+	if failed[col["error"]] != "pipeline: open <models>/m1.tif: no such file; second line" || failed[col["auc_base"]] != "" {
+		t.Errorf("failed row %q", failed)
+	}
+	eps2 := recs[6]
+	for c, want := range map[string]string{"auc_base": "0.79", "auc_min": "0.72", "auc_min_extent": "wide", "auc_max": "0.79", "auc_range": "0.07000000000000006",
+		"effect_extent": "wide", "auc_diff": "-0.07", "auc_diff_ci_low": "-0.09", "auc_diff_ci_high": "-0.05", "auc_verdict": VerdictSensitive,
+		"null": DistanceNullName, "auc_minus_null": "-0.05", "null_reading": ReadingBelow, "tolerance": "0.02"} {
+		if eps2[col[c]] != want {
+			t.Errorf("eps/m2 %s = %q, want %q (hand-built values; range 0.79-0.72 in float64)", c, eps2[col[c]], want)
+		}
+	}
+	// gamma has no null: the null columns stay empty.
+	if g := recs[3]; g[col["null"]] != "" || g[col["null_reading"]] != "" || g[col["auc_minus_null"]] != "" {
+		t.Errorf("gamma null columns %q", g)
+	}
+	var v bytes.Buffer
+	if err := s.WriteVerdictsCSV(&v); err != nil {
+		t.Fatal(err)
+	}
+	vr, err := csv.NewReader(&v).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(vr) != 1+6 || vr[6][0] != "zeta" || vr[6][5] != VerdictRobust {
+		t.Errorf("verdicts csv %q", vr)
+	}
+}
+
+// TestEffectOrder checks the figure's order: by each study's effect of
+// largest magnitude (eps: m2's -0.07 beats m1's +0.06), ascending, ties by
+// id; studies without a defined effect are left out.
+func TestEffectOrder(t *testing.T) {
+	studies := handBatch()
+	// A study whose only model has no difference from the base.
+	studies = append(studies, StudyResult{ID: "eta", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.7}})})
+	// A tie with alpha's +0.08, sorted by id.
+	studies = append(studies, StudyResult{ID: "aardvark", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.7, "wide": 0.78},
+		effects: []effect{{"wide", 0.08, 0.07, 0.09}}})})
+	s, err := Summarize(studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []string{"eps", "gamma", "beta", "zeta", "aardvark", "alpha"}
+	if got := s.EffectOrder(); !slices.Equal(got, want) {
+		t.Errorf("order %v, want %v", got, want)
+	}
+}
+
+// TestSummarizeMistakes checks the programmer errors.
+func TestSummarizeMistakes(t *testing.T) {
+	ok := handStudy(DefaultToleranceAUC, handModel{name: "m", aucs: map[string]float64{"base": 0.7}})
+	for name, studies := range map[string][]StudyResult{
+		"empty id":    {{ID: "", Results: ok}},
+		"repeated id": {{ID: "a", Results: ok}, {ID: "A", Err: errors.New("x")}},
+		"no result":   {{ID: "a"}},
+	} {
+		if _, err := Summarize(studies); err == nil {
+			t.Errorf("%s: accepted", name)
+		}
+	}
+	s, err := Summarize(nil)
+	if err != nil || s.Counts.Studies != 0 || s.CountSentence() != "None of the 0 studies gave results." {
+		t.Errorf("empty batch: %v %+v %q", err, s.Counts, s.CountSentence())
+	}
+}
+
+// TestSummaryFromAnalysis summarises the analysed sample run (results
+// without a sensitivity analysis are analysed by Summarize) and checks
+// each row's AUC minimum and maximum against the scores themselves.
+func TestSummaryFromAnalysis(t *testing.T) {
+	r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Summarize([]StudyResult{{ID: "sample", Results: r}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Sensitivity == nil || len(s.Rows) == 0 {
+		t.Fatal("sample not analysed")
+	}
+	ok := map[string]bool{}
+	for _, e := range r.Extents {
+		ok[e.ID] = e.Status == ExtentOK
+	}
+	for _, row := range s.Rows {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, sc := range r.Scores {
+			if sc.Model == row.Model && sc.Scored && ok[sc.Extent] {
+				lo, hi = math.Min(lo, sc.AUC), math.Max(hi, sc.AUC)
+			}
+		}
+		if row.AUCMin != lo || row.AUCMax != hi || row.AUCRange != hi-lo {
+			t.Errorf("%s: AUC %g..%g (range %g), scores give %g..%g", row.Model, row.AUCMin, row.AUCMax, row.AUCRange, lo, hi)
+		}
+		if row.EffectDefined && (row.EffectLow > row.Effect || row.Effect > row.EffectHigh) {
+			t.Errorf("%s: effect %g outside its interval %g..%g", row.Model, row.Effect, row.EffectLow, row.EffectHigh)
+		}
+	}
+}
+
+// TestWriteSummary writes the summary twice (same bytes), then checks the
+// page: links to each study's report, the failed study with its error
+// escaped, the figure inline, and the figure's axes and print sizes.
+func TestWriteSummary(t *testing.T) {
+	s, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	dirs := []string{t.TempDir(), t.TempDir()}
+	for _, d := range dirs {
+		if err := WriteSummary(d, s); err != nil {
+			t.Fatal(err)
+		}
+	}
+	names := []string{SummaryCSV, SummaryVerdicts, SummaryHTML, SummaryMethods}
+	for _, f := range figureFormats {
+		names = append(names, filepath.Join(SummaryFigures, EffectFigure+"."+f))
+	}
+	for _, n := range names {
+		a, err := os.ReadFile(filepath.Join(dirs[0], n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := os.ReadFile(filepath.Join(dirs[1], n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s differs between two writes", n)
+		}
+	}
+	page, _ := os.ReadFile(filepath.Join(dirs[0], SummaryHTML))
+	html := string(page)
+	for _, want := range []string{`<a href="./alpha/report.html">alpha</a>`, `<a href="./zeta/report.html">zeta</a>`,
+		`<strong>delta</strong>: <code>pipeline: open &lt;models&gt;/m1.tif: no such file; second line</code>`,
+		`<svg id="fig-extent_effect" class="figure"`, "AUC was extent-sensitive for 2 of 5 studies"} {
+		if !strings.Contains(html, want) {
+			t.Errorf("summary.html lacks %q", want)
+		}
+	}
+	if strings.Contains(html, "<models>") || strings.Contains(html, "delta/report.html") {
+		t.Error("summary.html holds the raw error or a link to the failed study")
+	}
+	svg, err := os.ReadFile(filepath.Join(dirs[0], SummaryFigures, EffectFigure+".svg"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	probs, n := checkAxisLabels(t, EffectFigure, svg)
+	for _, p := range probs {
+		t.Error(p)
+	}
+	if n < 1 {
+		t.Errorf("no labelled numeric axis found")
+	}
+	texts, _ := parseSVG(t, svg)
+	labels := map[string]bool{}
+	for _, tx := range texts {
+		labels[tx.s] = true
+		if tx.size < minFontPt {
+			t.Errorf("%q at %g pt", tx.s, tx.size)
+		}
+	}
+	for _, id := range s.EffectOrder() {
+		if !labels[id] {
+			t.Errorf("figure has no row label %q", id)
+		}
+	}
+	if labels["delta"] {
+		t.Error("the failed study has a row in the figure")
+	}
+}
+
+// TestEffectLayout checks that the figure stays on a page and drops the
+// row names once they would be under effectMinLabelPitch apart: with a
+// 230 mm page and a 38 mm frame, (230 - 38) / 3.5 = 54.9, so 54 rows are
+// named and 55 are not (arithmetic on our own layout constants).
+func TestEffectLayout(t *testing.T) {
+	mm := float64(vg.Millimeter)
+	for _, c := range []struct {
+		n      int
+		hMM    float64
+		labels bool
+	}{
+		{1, 70, true},    // 38 + 4.5 = 42.5 mm, raised to the 70 mm minimum
+		{10, 83, true},   // 38 + 45
+		{42, 227, true},  // 38 + 189
+		{54, 230, true},  // capped at the page
+		{55, 230, false}, // 192 / 55 = 3.49 mm per row
+		{400, 230, false},
+	} {
+		h, labels := effectLayout(c.n)
+		if math.Abs(float64(h)/mm-c.hMM) > 1e-9 || labels != c.labels {
+			t.Errorf("n=%d: height %.2f mm labels %v, want %.0f mm labels %v", c.n, float64(h)/mm, labels, c.hMM, c.labels)
+		}
+	}
+}
