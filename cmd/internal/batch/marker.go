@@ -1,0 +1,91 @@
+package batch
+
+import (
+	"bufio"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+
+	"areasweep/cmd/internal/slurm"
+)
+
+// Marker is the content of a completion marker: "key<TAB>value" lines.
+// The keys WriteMarker writes are "study", "settings" (SettingsHash of the
+// study's settings) and "results" (the SHA-256 of its results.json).
+// The SLURM array script writes "study", "shard", "finished" and "job".
+type Marker map[string]string
+
+// SettingsHash is the hex SHA-256 of a canonical encoding of a study's
+// settings (the command chooses the encoding; it must not hold anything
+// that does not change a number, such as the worker count).
+func SettingsHash(canonical []byte) string {
+	h := sha256.Sum256(canonical)
+	return hex.EncodeToString(h[:])
+}
+
+// MarkerPath is the marker's path in a study's folder.
+func MarkerPath(dir string) string { return filepath.Join(dir, slurm.MarkerName) }
+
+// WriteMarker writes m into dir's marker, atomically: a temporary file in
+// dir, synced, then renamed. Keys are written sorted.
+func WriteMarker(dir string, m Marker) error {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		if strings.ContainsAny(k, "\t\n\r") || strings.ContainsAny(m[k], "\n\r") {
+			return fmt.Errorf("batch: marker field %q holds a tab or line break", k)
+		}
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	var b strings.Builder
+	for _, k := range keys {
+		fmt.Fprintf(&b, "%s\t%s\n", k, m[k])
+	}
+	tmp, err := os.CreateTemp(dir, "."+slurm.MarkerName+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("batch: writing the completion marker in %s: %w", dir, err)
+	}
+	_, err = tmp.WriteString(b.String())
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), MarkerPath(dir))
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("batch: writing the completion marker in %s: %w", dir, err)
+	}
+	return nil
+}
+
+// ReadMarker reads dir's marker. It returns (nil, nil) when there is none.
+func ReadMarker(dir string) (Marker, error) {
+	f, err := os.Open(MarkerPath(dir))
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, fmt.Errorf("batch: reading the completion marker: %w", err)
+	}
+	defer f.Close()
+	m := Marker{}
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		if k, v, ok := strings.Cut(sc.Text(), "\t"); ok {
+			m[k] = v
+		}
+	}
+	if err := sc.Err(); err != nil {
+		return nil, fmt.Errorf("batch: reading the completion marker %s: %w", MarkerPath(dir), err)
+	}
+	return m, nil
+}
