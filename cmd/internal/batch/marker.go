@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"slices"
@@ -88,4 +89,18 @@ func ReadMarker(dir string) (Marker, error) {
 		return nil, fmt.Errorf("batch: reading the completion marker %s: %w", MarkerPath(dir), err)
 	}
 	return m, nil
+}
+
+// FileSHA256 returns the hex SHA-256 of the file at path.
+func FileSHA256(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", fmt.Errorf("batch: %w", err)
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", fmt.Errorf("batch: reading %s: %w", path, err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
 }

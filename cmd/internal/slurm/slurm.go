@@ -148,6 +148,11 @@ type Plan struct {
 	Partition string
 	// MaxParallel limits how many array tasks run at once (0: no limit).
 	MaxParallel int
+	// MergeAfterAny starts the merge job once every task has ended, failed
+	// or not (--dependency=afterany), for a merge that reports the tasks
+	// that failed; by default it starts only when every task succeeded
+	// (afterok).
+	MergeAfterAny bool
 }
 
 var jobNameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,64}$`)
@@ -330,7 +335,11 @@ func (p *Plan) mergeScript(f Files) string {
 	fmt.Fprintf(&b, "#SBATCH --job-name=%s-merge\n", p.Name)
 	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "merge-%j.log"))
 	p.resources(&b)
-	b.WriteString("# Written by areasweep. Runs after every array task succeeded (afterok).\nset -euo pipefail\n")
+	if p.MergeAfterAny {
+		b.WriteString("# Written by areasweep. Runs after every array task ended, failed or not (afterany).\nset -euo pipefail\n")
+	} else {
+		b.WriteString("# Written by areasweep. Runs after every array task succeeded (afterok).\nset -euo pipefail\n")
+	}
 	fmt.Fprintf(&b, "export AREASWEEP_MANIFEST=%s\n", Quote(f.Manifest))
 	b.WriteString(p.MergeCommand)
 	b.WriteString("\n")
@@ -408,7 +417,11 @@ func (s Submitter) Submit(ctx context.Context, p *Plan, f Files, ids []int) (Sub
 	if f.Merge != "" {
 		args := []string{f.Merge}
 		if sub.ArrayJob != "" {
-			args = []string{"--dependency=afterok:" + sub.ArrayJob, "--kill-on-invalid-dep=yes", f.Merge}
+			dep := "afterok"
+			if p.MergeAfterAny {
+				dep = "afterany"
+			}
+			args = []string{"--dependency=" + dep + ":" + sub.ArrayJob, "--kill-on-invalid-dep=yes", f.Merge}
 		}
 		jid, err := s.sbatch(ctx, args...)
 		if err != nil {

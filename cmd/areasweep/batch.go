@@ -1,0 +1,540 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
+
+	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/slurm"
+	"areasweep/report"
+)
+
+// BatchOptions runs every study of a study table.
+type BatchOptions struct {
+	IO    *IO
+	Table string
+	Out   string
+	// Jobs is the most studies running at once; Memory the budget in
+	// bytes they may need together (0: MemoryBudget of this machine).
+	Jobs   int
+	Memory int64
+	// Only restricts the run to these study ids (a scheduler task runs
+	// one); the summary is then not written.
+	Only []string
+	// SummaryOnly writes the summary from the finished study folders and
+	// runs nothing.
+	SummaryOnly bool
+	Force       bool
+	Quiet       bool
+	// Slurm writes the SLURM job files instead of running; Submit also
+	// submits them (see batchslurm.go).
+	Slurm SlurmOptions
+}
+
+// batchMarker is the folder of the batch's own files inside --out (the
+// SLURM plan); ids cannot start with a dot, so it never clashes with a
+// study. Its presence also marks --out as a batch's folder.
+const batchMarker = ".areasweep-batch"
+
+const batchExample = `  # run every study of the table, two at a time, into runs/<id>/
+  areasweep batch studies.csv --out runs --jobs 2
+
+  # after fixing a failed study's input: the same command runs only what is not done
+  areasweep batch studies.csv --out runs --jobs 2
+
+  # the same batch on a SLURM cluster: write the job files, submit them
+  areasweep batch studies.csv --out /scratch/runs --slurm --submit`
+
+func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
+	opts := &BatchOptions{IO: streams}
+	var memory string
+	cmd := &cobra.Command{
+		Use:   "batch TABLE",
+		Short: "Run every study of a study table, several at once, and summarise across them",
+		Long: `batch reads a study table (CSV or YAML: one row per study with its id, models,
+occurrences and region, shared settings in one block), checks every row before
+anything runs (bad rows are listed by line and column, exit 2), then runs each
+study into --out/<id>/ with its full outputs, several at once within --jobs and a
+memory budget. A study that fails does not stop the others. Finally it writes the
+summary across studies into --out: summary.csv, summary_verdicts.csv, summary.html,
+summary_methods.md and summary_figures/.
+
+A finished study's folder holds the completion marker ` + "`.areasweep-done`" + `; running
+the same command again skips those studies and runs the others (failed ones
+included). Exit status: 0 when every study has results, 1 when at least one failed
+(the summary lists each with its error), 2 for a bad table or flags (nothing ran).`,
+		Example: batchExample,
+		Args:    cobra.ExactArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			opts.Table = args[0]
+			if c.Flags().Changed("memory") {
+				m, err := parseBytes(memory)
+				if err != nil {
+					return fault.BadInput(fmt.Errorf("--memory %q: %w", memory, err))
+				}
+				opts.Memory = m
+			}
+			if err := opts.validate(); err != nil {
+				return fault.BadInput(err)
+			}
+			if runF != nil {
+				return runF(opts)
+			}
+			return batchRun(context.Background(), opts)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&opts.Out, "out", "", "output `DIR`: one folder per study, and the summary")
+	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each uses all cores / N workers unless its row sets workers)")
+	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory)")
+	f.StringSliceVar(&opts.Only, "only", nil, "run only these study `IDS` (comma-separated) and write no summary; for scheduler tasks")
+	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run nothing: write the summary from the study folders already finished")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished (replacing areasweep's files in their folders)")
+	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
+	bindSlurmFlags(f, &opts.Slurm)
+	return cmd
+}
+
+// validate checks the flags that need no file access.
+func (o *BatchOptions) validate() error {
+	switch {
+	case o.Out == "":
+		return errors.New("--out is missing; name the folder that receives one folder per study and the summary")
+	case o.Jobs < 1 || o.Jobs > maxWorkers:
+		return fmt.Errorf("--jobs is %d; give 1 to %d", o.Jobs, maxWorkers)
+	case o.Memory < 0:
+		return fmt.Errorf("--memory is negative")
+	case o.SummaryOnly && len(o.Only) > 0:
+		return errors.New("--summary-only and --only exclude each other: --only runs studies and writes no summary")
+	case o.Slurm.Enabled && (o.SummaryOnly || len(o.Only) > 0):
+		return errors.New("--slurm writes job files for the whole table; it does not combine with --summary-only or --only")
+	case o.Slurm.Submit && !o.Slurm.Enabled:
+		return errors.New("--submit needs --slurm")
+	}
+	return o.Slurm.validate()
+}
+
+// parseBytes reads a size such as 512M, 8G, 1.5GiB or a plain byte count.
+func parseBytes(s string) (int64, error) {
+	t := strings.ToUpper(strings.TrimSpace(s))
+	t = strings.TrimSuffix(strings.TrimSuffix(t, "IB"), "B")
+	mult := int64(1)
+	for _, u := range []struct {
+		suffix string
+		m      int64
+	}{{"K", 1 << 10}, {"M", 1 << 20}, {"G", 1 << 30}, {"T", 1 << 40}} {
+		if strings.HasSuffix(t, u.suffix) {
+			t, mult = strings.TrimSuffix(t, u.suffix), u.m
+			break
+		}
+	}
+	v, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+	if err != nil || !(v > 0) || v*float64(mult) > 1<<62 {
+		return 0, errors.New("give a positive size such as 512M, 8G or 16GiB")
+	}
+	return int64(v * float64(mult)), nil
+}
+
+// batchStudy is one row of the table, resolved.
+type batchStudy struct {
+	id       string
+	line     int
+	opts     RunOptions
+	settings string // batch.SettingsHash of the settings
+	dir      string // --out/<id>
+}
+
+// resolveBatch reads the table and resolves every row into run options,
+// collecting every problem, by line and column, before anything runs.
+func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
+	b, err := inputs.LoadBatch(o.Table)
+	if err != nil {
+		return nil, err
+	}
+	out, err := filepath.Abs(o.Out)
+	if err != nil {
+		return nil, fmt.Errorf("--out %s: %w", o.Out, err)
+	}
+	var errs inputs.BatchErrors
+	reserved := map[string]bool{}
+	for _, n := range append(report.SummaryNames(), batchMarker) {
+		reserved[strings.ToLower(n)] = true
+	}
+	var studies []*batchStudy
+	for _, row := range b.Studies {
+		bad := func(column string, err error) {
+			errs = append(errs, &inputs.BatchError{File: b.File, Line: row.Line, Column: column, Study: row.ID, Err: err})
+		}
+		if reserved[strings.ToLower(row.ID)] {
+			bad("id", fmt.Errorf("%q is the name of a summary file in --out; rename the study", row.ID))
+			continue
+		}
+		ro := defaultRunOptions()
+		ro.applyStudy(row.Study, pflag.NewFlagSet("row", pflag.ContinueOnError))
+		ro.Out = filepath.Join(out, row.ID)
+		if err := ro.validate(); err != nil {
+			bad(flagColumn(err.Error()), err)
+			continue
+		}
+		if col, err := missingInput(&ro.Options); err != nil {
+			bad(col, err)
+			continue
+		}
+		st := &batchStudy{id: row.ID, line: row.Line, opts: ro, dir: ro.Out}
+		st.settings = batch.SettingsHash(canonicalSettings(ro.Options))
+		studies = append(studies, st)
+	}
+	if len(errs) > 0 {
+		return nil, errs
+	}
+	if len(o.Only) > 0 {
+		keep := map[string]bool{}
+		for _, id := range o.Only {
+			keep[strings.ToLower(id)] = true
+		}
+		var sel []*batchStudy
+		for _, st := range studies {
+			if keep[strings.ToLower(st.id)] {
+				sel = append(sel, st)
+				delete(keep, strings.ToLower(st.id))
+			}
+		}
+		if len(keep) > 0 {
+			var ids []string
+			for _, id := range o.Only {
+				if keep[strings.ToLower(id)] {
+					ids = append(ids, id)
+				}
+			}
+			return nil, fmt.Errorf("--only names %s, not in %s", strings.Join(ids, ", "), o.Table)
+		}
+		studies = sel
+	}
+	return studies, nil
+}
+
+// flagColumn turns a validation message about "--name" into the table's
+// column "name" ("" when the message names no flag).
+func flagColumn(msg string) string {
+	for _, k := range inputs.StudyKeys() {
+		if strings.Contains(msg, "--"+k+" ") || strings.Contains(msg, "--"+k+":") || strings.HasSuffix(msg, "--"+k) {
+			return k
+		}
+	}
+	for _, w := range []struct{ word, col string }{{"no model", "model"}, {"no occurrences", "occurrences"}, {"no base region", "region"}} {
+		if strings.Contains(msg, w.word) {
+			return w.col
+		}
+	}
+	return ""
+}
+
+// missingInput names the first input file of o that does not exist, with
+// its column.
+func missingInput(o *pipeline.Options) (string, error) {
+	check := func(col, path string) error {
+		st, err := os.Stat(path)
+		if err != nil {
+			return fmt.Errorf("%s does not exist or cannot be read; check the path", path)
+		}
+		if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
+			return fmt.Errorf("%s is a folder, not a file", path)
+		}
+		return nil
+	}
+	for _, l := range []struct {
+		col   string
+		items []string
+	}{{"model", o.Models}, {"null", o.Nulls}, {"extra", o.Extra}} {
+		for _, m := range l.items {
+			_, path, _ := inputs.ParseNamedPath(m)
+			if err := check(l.col, path); err != nil {
+				return l.col, err
+			}
+		}
+	}
+	for _, p := range []struct{ col, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+		if p.path != "" {
+			if err := check(p.col, p.path); err != nil {
+				return p.col, err
+			}
+		}
+	}
+	return "", nil
+}
+
+// canonicalSettings encodes the settings that change a study's numbers or
+// files: everything but the output folder, --force, --quiet, the worker
+// count (results do not depend on it) and the recorded version.
+func canonicalSettings(o pipeline.Options) []byte {
+	o.Out, o.Force, o.Quiet, o.Workers, o.Version, o.StudyFile = "", false, false, 0, "", ""
+	data, err := json.Marshal(o)
+	if err != nil {
+		panic("batch: settings cannot be encoded: " + err.Error()) // plain fields only: a programmer's error
+	}
+	return data
+}
+
+// studyState is what is known of one study before the batch runs it.
+type studyState int
+
+const (
+	statePending studyState = iota // to run
+	stateDone                      // finished earlier (marker): skipped
+	stateStale                     // finished earlier from other settings
+)
+
+// state reads a study folder's marker.
+func (st *batchStudy) state() (studyState, error) {
+	m, err := batch.ReadMarker(st.dir)
+	if err != nil {
+		return statePending, err
+	}
+	switch {
+	case m == nil:
+		return statePending, nil
+	case m["settings"] != "" && m["settings"] != st.settings:
+		return stateStale, nil
+	}
+	return stateDone, nil
+}
+
+// batchRun runs the batch: resolve, run what is not done, summarise.
+func batchRun(ctx context.Context, o *BatchOptions) error {
+	studies, err := resolveBatch(o)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	if err := claimBatchDir(o.Out); err != nil {
+		return err
+	}
+	if o.Slurm.Enabled {
+		return batchSlurm(ctx, o, studies)
+	}
+	p := &progress{o: o, total: len(studies)}
+	errs := make([]error, len(studies))
+	if !o.SummaryOnly {
+		errs = runStudies(ctx, o, studies, p)
+		for i, st := range studies {
+			recordFailure(o.Out, st.id, errs[i])
+		}
+	} else {
+		for i, st := range studies {
+			if s, err := st.state(); err != nil || s != stateDone {
+				errs[i] = readFailure(o.Out, st)
+			}
+		}
+	}
+	failed := 0
+	for _, err := range errs {
+		if err != nil {
+			failed++
+		}
+	}
+	if len(o.Only) == 0 {
+		if err := writeBatchSummary(o, studies, errs); err != nil {
+			return err
+		}
+		fmt.Fprintf(o.IO.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
+	}
+	if failed > 0 {
+		var ids []string
+		for i, err := range errs {
+			if err != nil {
+				ids = append(ids, studies[i].id)
+			}
+		}
+		return fmt.Errorf("%d of %d studies failed: %s; %s lists each with its error, and running the same command again retries them",
+			failed, len(studies), strings.Join(ids, ", "), filepath.Join(o.Out, report.SummaryHTML))
+	}
+	return nil
+}
+
+// failurePath is where a study's last error is kept, so that a summary
+// written later (by the scheduler's merge job) can show it.
+func failurePath(out, id string) string { return filepath.Join(out, batchMarker, "failed", id+".txt") }
+
+// recordFailure keeps err as the study's last error, or removes the
+// record when err is nil. Best effort: the summary names the study as
+// unfinished without it.
+func recordFailure(out, id string, err error) {
+	p := failurePath(out, id)
+	if err == nil {
+		os.Remove(p)
+		return
+	}
+	if os.MkdirAll(filepath.Dir(p), 0o755) == nil {
+		os.WriteFile(p, []byte(oneLine(err.Error())+"\n"), 0o644)
+	}
+}
+
+// readFailure is the error of a study that did not finish: the one its
+// run recorded, else a note that it did not finish.
+func readFailure(out string, st *batchStudy) error {
+	if b, err := os.ReadFile(failurePath(out, st.id)); err == nil && len(b) > 0 {
+		return errors.New(strings.TrimSpace(string(b)))
+	}
+	return fmt.Errorf("not finished: %s holds no completion marker (%s); see the job logs", st.dir, slurm.MarkerName)
+}
+
+// claimBatchDir creates --out or checks that it is empty or a batch's
+// folder, and marks it as one.
+func claimBatchDir(out string) error {
+	ents, err := os.ReadDir(out)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		if err := os.MkdirAll(out, 0o755); err != nil {
+			return fmt.Errorf("cannot create --out %s: %w", out, err)
+		}
+	case err != nil:
+		return fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
+	case len(ents) > 0:
+		if _, err := os.Stat(filepath.Join(out, batchMarker)); err != nil {
+			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, batchMarker))
+		}
+	}
+	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o755); err != nil {
+		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, batchMarker), err)
+	}
+	return nil
+}
+
+// runStudies runs every study not yet done within the limits and returns
+// each study's error in table order.
+func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *progress) []error {
+	errs := make([]error, len(studies))
+	var jobs []batch.Job
+	var idx []int
+	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
+	for i, st := range studies {
+		s, err := st.state()
+		switch {
+		case err != nil:
+			errs[i] = err
+			continue
+		case s == stateDone:
+			p.line(st.id, "already finished, skipped")
+			continue
+		case s == stateStale && !o.Force:
+			errs[i] = fmt.Errorf("%s was made from other settings (the table row changed since it finished); add --force to run it again, or remove the folder", st.dir)
+			continue
+		case s == stateStale:
+			st.opts.Force = true
+		}
+		if st.opts.Workers == 0 {
+			st.opts.Workers = workers
+		}
+		need, err := pipeline.Estimate(st.opts.Options)
+		if err != nil {
+			errs[i] = err
+			continue
+		}
+		jobs = append(jobs, batch.Job{ID: st.id, Need: need})
+		idx = append(idx, i)
+	}
+	budget := o.Memory
+	if budget == 0 {
+		if budget = pipeline.MemoryBudget(); budget == 0 {
+			budget = 1 << 62 // unknown: the job count alone limits
+		}
+	}
+	runErrs := batch.Run(ctx, jobs, batch.Limits{Jobs: o.Jobs, Budget: budget}, func(ctx context.Context, k int) error {
+		st := studies[idx[k]]
+		p.line(st.id, "started")
+		t0 := time.Now()
+		err := runStudy(ctx, st)
+		if err != nil {
+			p.line(st.id, "failed: "+oneLine(err.Error()))
+			return err
+		}
+		p.line(st.id, fmt.Sprintf("finished in %.1f s", time.Since(t0).Seconds()))
+		return nil
+	})
+	for k, err := range runErrs {
+		if errors.Is(err, batch.ErrTooLarge) {
+			err = fmt.Errorf("%w; give more with --memory, or make the study smaller (coarser or clipped rasters, fewer extents or workers)", err)
+		}
+		errs[idx[k]] = err
+	}
+	return errs
+}
+
+// runStudy runs one study into its folder and writes its marker.
+func runStudy(ctx context.Context, st *batchStudy) error {
+	po := st.opts.Options
+	po.Quiet, po.Version = true, version
+	if _, err := pipeline.Run(ctx, po, pipeline.IO{ErrOut: discard{}, Log: &pipeline.Log{}}); err != nil {
+		return err
+	}
+	sum, err := batch.FileSHA256(filepath.Join(st.dir, "results.json"))
+	if err != nil {
+		return err
+	}
+	return batch.WriteMarker(st.dir, batch.Marker{"study": st.id, "settings": st.settings, "results": sum})
+}
+
+// writeBatchSummary loads each finished study's results.json (the same
+// bytes whether it ran now or earlier, so the summary does not depend on
+// --jobs or on resuming) and writes the summary into --out.
+func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) error {
+	rs := make([]report.StudyResult, len(studies))
+	for i, st := range studies {
+		rs[i] = report.StudyResult{ID: st.id, Err: errs[i]}
+		if errs[i] != nil {
+			continue
+		}
+		r, err := report.Load(filepath.Join(st.dir, "results.json"))
+		if err != nil {
+			rs[i].Err = err
+			continue
+		}
+		rs[i].Results, rs[i].Report = r, st.id+"/report.html"
+	}
+	s, err := report.Summarize(rs)
+	if err != nil {
+		return fault.Internal(err)
+	}
+	if err := report.WriteSummary(o.Out, s); err != nil {
+		return fmt.Errorf("writing the summary: %w", err)
+	}
+	return nil
+}
+
+// progress prints one line per study event to standard error.
+type progress struct {
+	o     *BatchOptions
+	total int
+	mu    sync.Mutex
+}
+
+func (p *progress) line(id, what string) {
+	if p.o.Quiet {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	fmt.Fprintf(p.o.IO.ErrOut, "areasweep batch: %s: %s\n", id, what)
+}
+
+// oneLine joins an error message's lines.
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// discard is an io.Writer that drops everything.
+type discard struct{}
+
+func (discard) Write(p []byte) (int, error) { return len(p), nil }

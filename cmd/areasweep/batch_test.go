@@ -1,0 +1,272 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"strings"
+	"testing"
+)
+
+// batchTable writes a study table of three small studies on s's inputs
+// and returns its path: alpha (two models), beta (one model, another
+// seed) and broken, whose occurrences all lie outside the raster, so it
+// passes every check of the table and fails when it runs.
+func batchTable(t *testing.T, s *smallStudy) string {
+	t.Helper()
+	far := filepath.Join(s.dir, "occ_far.csv")
+	if err := os.WriteFile(far, []byte("lon,lat,role\n100.5,10.5,train\n100.6,10.4,test\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	table := filepath.Join(s.dir, "studies.csv")
+	body := `# region-buffers: -40,60
+# point-buffers: 40
+# hull-buffers: 0
+# e: 0.05
+# iterations: 30
+# seed: 9
+id,model,occurrences,region,seed
+alpha,m=model.tif;sq=model2.tif,occ.csv,region.geojson,9
+beta,m=model.tif,occ.csv,region.geojson,11
+broken,m=model.tif,occ_far.csv,region.geojson,9
+`
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return table
+}
+
+// studyArgs is the run command line equivalent to a row of batchTable.
+func (s *smallStudy) studyArgs(out, seed string, models ...string) []string {
+	a := []string{"run", "--occurrences", s.occ, "--region", s.region, "--region-buffers=-40,60", "--point-buffers", "40",
+		"--hull-buffers", "0", "--e", "0.05", "--iterations", "30", "--seed", seed, "--quiet", "--out", out}
+	for _, m := range models {
+		a = append(a, "--model", m)
+	}
+	return a
+}
+
+// treeFiles maps every regular file under dir (relative path) to its
+// bytes, leaving out run.log (it holds timings) and the batch's own
+// folder.
+func treeFiles(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	out := map[string][]byte{}
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		if d.IsDir() && rel == batchMarker {
+			return filepath.SkipDir
+		}
+		if d.Type().IsRegular() && d.Name() != "run.log" {
+			b, err := os.ReadFile(p)
+			if err != nil {
+				return err
+			}
+			out[rel] = b
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+// readSummary reads summary.csv as records keyed by column name.
+func readSummary(t *testing.T, dir string) []map[string]string {
+	t.Helper()
+	f, err := os.Open(filepath.Join(dir, "summary.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rows []map[string]string
+	for _, r := range recs[1:] {
+		m := map[string]string{}
+		for i, c := range recs[0] {
+			m[c] = r[i]
+		}
+		rows = append(rows, m)
+	}
+	return rows
+}
+
+// TestBatch runs a batch of three small studies, one failing at run time:
+// exit 1, the two others complete and byte-identical to plain runs with
+// the same settings, the failed one listed with its error in the summary;
+// --jobs 1 and --jobs 2 give the same bytes; a second run skips the
+// finished studies and retries the failed one, leaving the same summary.
+func TestBatch(t *testing.T) {
+	s := newSmallStudy(t)
+	table := batchTable(t, s)
+	outs := []string{filepath.Join(s.dir, "jobs1"), filepath.Join(s.dir, "jobs2")}
+	for i, jobs := range []string{"1", "2"} {
+		so, se, code := runBin(t, "batch", table, "--out", outs[i], "--jobs", jobs)
+		if code != 1 {
+			t.Fatalf("--jobs %s: exit %d, want 1 (one study fails)\n%s", jobs, code, se)
+		}
+		if !strings.Contains(so, "summary: "+filepath.Join(outs[i], "summary.html")) || !strings.Contains(se, "1 of 3 studies failed: broken") {
+			t.Errorf("--jobs %s: stdout %q stderr %q", jobs, so, se)
+		}
+		if forbidden.MatchString(se) {
+			t.Errorf("--jobs %s: raw library text on stderr: %s", jobs, se)
+		}
+	}
+	a, b := treeFiles(t, outs[0]), treeFiles(t, outs[1])
+	var names []string
+	for n := range a {
+		names = append(names, n)
+	}
+	slices.Sort(names)
+	for _, n := range names {
+		if !bytes.Equal(a[n], b[n]) {
+			t.Errorf("%s differs between --jobs 1 and --jobs 2", n)
+		}
+	}
+	if len(a) != len(b) {
+		t.Errorf("--jobs 1 wrote %d files, --jobs 2 %d", len(a), len(b))
+	}
+	for _, want := range []string{"alpha/results.json", "alpha/scores.csv", "alpha/report.html", "alpha/.areasweep-done", "beta/results.json",
+		"summary.csv", "summary_verdicts.csv", "summary.html", "summary_methods.md", "summary_figures/extent_effect.svg", "summary_figures/extent_effect.pdf", "summary_figures/extent_effect.png"} {
+		if _, ok := a[want]; !ok {
+			t.Errorf("batch wrote no %s", want)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(outs[0], "broken")); err == nil {
+		t.Error("the failed study left a folder")
+	}
+
+	// Each study equals a plain run with the same settings.
+	for _, c := range []struct {
+		id, seed string
+		models   []string
+	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}} {
+		plain := filepath.Join(s.dir, "plain-"+c.id)
+		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
+			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
+		}
+		for _, f := range []string{"results.json", "scores.csv"} {
+			want, _ := os.ReadFile(filepath.Join(plain, f))
+			if got := a[c.id+"/"+f]; len(want) == 0 || !bytes.Equal(got, want) {
+				t.Errorf("%s/%s differs from a plain run with the same settings", c.id, f)
+			}
+		}
+	}
+
+	// The summary: one row per study and model, the failed study with the
+	// run's own message.
+	rows := readSummary(t, outs[0])
+	var keys []string
+	for _, r := range rows {
+		keys = append(keys, r["study"]+"/"+r["model"]+"/"+r["status"])
+	}
+	if want := []string{"alpha/m/ok", "alpha/sq/ok", "beta/m/ok", "broken//failed"}; !slices.Equal(keys, want) {
+		t.Errorf("summary rows %v, want %v", keys, want)
+	}
+	if e := rows[3]["error"]; !strings.Contains(e, "outside") {
+		t.Errorf("broken's error in the summary: %q", e)
+	}
+	alpha := loadResults(t, filepath.Join(outs[0], "alpha"))
+	for _, sc := range alpha.Scores {
+		if sc.Model == "m" && sc.Extent == alpha.Sensitivity.BaseExtent {
+			if got := rows[0]["auc_base"]; got != fmt.Sprint(sc.AUC) && got != strings.TrimSuffix(fmt.Sprintf("%v", sc.AUC), ".0") {
+				t.Errorf("alpha/m auc_base %s, results.json says %v", got, sc.AUC)
+			}
+		}
+	}
+	page, _ := os.ReadFile(filepath.Join(outs[0], "summary.html"))
+	for _, want := range []string{`href="./alpha/report.html"`, `href="./beta/report.html"`, "<strong>broken</strong>"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("summary.html lacks %s", want)
+		}
+	}
+
+	// Again: the finished studies are skipped, the failed one retried.
+	before := treeFiles(t, outs[0])
+	_, se, code := runBin(t, "batch", table, "--out", outs[0], "--jobs", "2")
+	if code != 1 {
+		t.Fatalf("second run: exit %d\n%s", code, se)
+	}
+	for _, want := range []string{"alpha: already finished, skipped", "beta: already finished, skipped", "broken: started", "broken: failed"} {
+		if !strings.Contains(se, want) {
+			t.Errorf("second run: stderr lacks %q:\n%s", want, se)
+		}
+	}
+	after := treeFiles(t, outs[0])
+	for n, b := range before {
+		if !bytes.Equal(after[n], b) {
+			t.Errorf("second run changed %s", n)
+		}
+	}
+
+	// --summary-only rewrites the same summary from the folders, with the
+	// error the run recorded.
+	if err := os.Remove(filepath.Join(outs[0], "summary.csv")); err != nil {
+		t.Fatal(err)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", outs[0], "--summary-only"); code != 1 {
+		t.Fatalf("--summary-only: exit %d\n%s", code, se)
+	}
+	if got, _ := os.ReadFile(filepath.Join(outs[0], "summary.csv")); !bytes.Equal(got, before["summary.csv"]) {
+		t.Errorf("--summary-only wrote another summary.csv:\n%s\nwant\n%s", got, before["summary.csv"])
+	}
+}
+
+// TestBatchBadTable checks that bad rows are all reported, by line and
+// column, with exit 2, before anything runs: --out is not created.
+func TestBatchBadTable(t *testing.T) {
+	s := newSmallStudy(t)
+	table := filepath.Join(s.dir, "bad.csv")
+	body := `# iterations: 30
+id,model,occurrences,region,e
+ok1,m=model.tif,occ.csv,region.geojson,0.05
+nofile,m=missing.tif,occ.csv,region.geojson,0.05
+badE,m=model.tif,occ.csv,region.geojson,1.5
+summary.csv,m=model.tif,occ.csv,region.geojson,0.05
+`
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(s.dir, "out")
+	_, se, code := runBin(t, "batch", table, "--out", out)
+	if code != 2 {
+		t.Fatalf("exit %d, want 2\n%s", code, se)
+	}
+	for _, re := range []string{
+		`bad.csv line 4, study "nofile", column "model": .*missing.tif does not exist`,
+		`bad.csv line 5, study "badE", column "e": --e value 1.5 is outside \(0,1\)`,
+		`bad.csv line 6, study "summary.csv", column "id": .*summary file`,
+	} {
+		if !regexp.MustCompile(re).MatchString(se) {
+			t.Errorf("stderr lacks %q:\n%s", re, se)
+		}
+	}
+	if strings.Contains(se, `"ok1"`) {
+		t.Errorf("the good row is reported:\n%s", se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("--out was created for a bad table")
+	}
+	// A syntax problem of the table itself, and a flag problem.
+	if err := os.WriteFile(table, []byte("id,model,colour\nx,m=model.tif,red\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out); code != 2 || !strings.Contains(se, `column "colour"`) {
+		t.Errorf("unknown column: exit %d\n%s", code, se)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--jobs", "0"); code != 2 || !strings.Contains(se, "--jobs") {
+		t.Errorf("--jobs 0: exit %d\n%s", code, se)
+	}
+}

@@ -1,0 +1,160 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"time"
+
+	"github.com/spf13/pflag"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/slurm"
+)
+
+// SlurmOptions turn a batch into a SLURM job array plus a merge job.
+type SlurmOptions struct {
+	// Enabled (--slurm) writes the job files instead of running.
+	Enabled bool
+	// Submit submits them with sbatch; Wait then waits until they left
+	// the queue and reports the tasks that did not finish.
+	Submit, Wait bool
+	// Partition, TimeLimit, CPUs and MaxParallel are the job's resources.
+	Partition, TimeLimit string
+	CPUs, MaxParallel    int
+}
+
+func bindSlurmFlags(f *pflag.FlagSet, o *SlurmOptions) {
+	f.BoolVar(&o.Enabled, "slurm", false, "write a SLURM job array (one task per study) and a merge job that writes the summary, instead of running")
+	f.BoolVar(&o.Submit, "submit", false, "with --slurm: submit the unfinished tasks and the merge job with sbatch")
+	f.BoolVar(&o.Wait, "wait", false, "with --submit: wait until the jobs have left the queue and report the tasks that did not finish")
+	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs")
+	f.StringVar(&o.TimeLimit, "time", "", "with --slurm: time limit per task, e.g. `02:00:00`")
+	f.IntVar(&o.CPUs, "cpus-per-task", 1, "with --slurm: CPUs per task `N` (each study uses them all)")
+	f.IntVar(&o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
+}
+
+func (o *SlurmOptions) validate() error {
+	switch {
+	case o.Wait && !o.Submit:
+		return errors.New("--wait needs --submit")
+	case !o.Enabled && (o.Partition != "" || o.TimeLimit != "" || o.MaxParallel != 0):
+		return errors.New("--partition, --time and --max-parallel need --slurm")
+	case o.CPUs < 1 || o.CPUs > maxWorkers:
+		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, maxWorkers)
+	case o.MaxParallel < 0:
+		return fmt.Errorf("--max-parallel is %d; give 0 (no limit) or more", o.MaxParallel)
+	}
+	return nil
+}
+
+// slurmDir is where the plan goes: manifest.tsv, array.sh, merge.sh, logs/.
+func slurmDir(out string) string { return filepath.Join(out, batchMarker, "slurm") }
+
+var jobNameUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
+
+// slurmPlan builds the plan of a batch: one task per study (the whole
+// study, shard 1/1) running this executable's batch command on that
+// study alone, and a merge job writing the summary; memory per task from
+// the largest study's estimate.
+func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
+	exe, err := os.Executable()
+	if err != nil {
+		return nil, fmt.Errorf("cannot find the areasweep executable for the job scripts: %w", err)
+	}
+	table, err := filepath.Abs(o.Table)
+	if err != nil {
+		return nil, err
+	}
+	out, err := filepath.Abs(o.Out)
+	if err != nil {
+		return nil, err
+	}
+	name := "areasweep-" + jobNameUnsafe.ReplaceAllString(filepath.Base(out), "_")
+	if len(name) > 64 {
+		name = name[:64]
+	}
+	p := &slurm.Plan{Name: name, Dir: slurmDir(out), CPUs: o.Slurm.CPUs, TimeLimit: o.Slurm.TimeLimit,
+		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true}
+	var need int64
+	for _, st := range studies {
+		p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: 1, Shards: 1, Out: st.dir})
+		so := st.opts.Options
+		so.Workers = o.Slurm.CPUs
+		// A study whose inputs cannot be read still gets its task: it
+		// fails there and the summary lists it.
+		if n, err := pipeline.Estimate(so); err == nil {
+			need = max(need, n)
+		}
+	}
+	p.MemoryMB = slurm.MemoryMB(need)
+	base := slurm.Quote(exe) + " batch " + slurm.Quote(table) + " --out " + slurm.Quote(out) + " --quiet"
+	if o.Force {
+		base += " --force"
+	}
+	p.TaskCommand = base + ` --jobs 1 --only "$AREASWEEP_STUDY"`
+	p.MergeCommand = base + " --summary-only"
+	return p, nil
+}
+
+// batchSlurm writes the plan and, with --submit, submits the unfinished
+// tasks and the merge job.
+func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) error {
+	p, err := slurmPlan(o, studies)
+	if err != nil {
+		return err
+	}
+	files, err := p.Write()
+	if err != nil {
+		return fault.Internal(err)
+	}
+	pending := p.Pending()
+	w := o.IO.Out
+	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, plural(p.CPUs))
+	fmt.Fprintf(w, "merge job: %s\nmanifest:  %s\nlogs:      %s\n", files.Merge, files.Manifest, files.Logs)
+	if !o.Slurm.Submit {
+		if len(pending) > 0 {
+			fmt.Fprintf(w, "submit with:\n  sbatch --parsable --array=%s %s\n  sbatch --dependency=afterany:<array job id> %s\n(or run this command again with --submit)\n",
+				slurm.ArraySpec(pending, p.MaxParallel), slurm.Quote(files.Array), slurm.Quote(files.Merge))
+		} else {
+			fmt.Fprintf(w, "every task is finished; submit the merge job alone: sbatch %s\n", slurm.Quote(files.Merge))
+		}
+		return nil
+	}
+	sub, err := (slurm.Submitter{}).Submit(ctx, p, files, pending)
+	if err != nil {
+		return err
+	}
+	if sub.ArrayJob != "" {
+		fmt.Fprintf(w, "submitted array job %s (tasks %s)\n", sub.ArrayJob, slurm.ArraySpec(sub.Tasks, 0))
+	}
+	fmt.Fprintf(w, "submitted merge job %s; the summary will be %s\n", sub.MergeJob, filepath.Join(o.Out, "summary.html"))
+	if !o.Slurm.Wait {
+		return nil
+	}
+	if err := (slurm.Submitter{}).Wait(ctx, 2*time.Second, sub.ArrayJob, sub.MergeJob); err != nil {
+		return err
+	}
+	if left := p.Pending(); len(left) > 0 {
+		var ids []string
+		for _, k := range left {
+			ids = append(ids, p.Tasks[k-1].Study)
+		}
+		return fmt.Errorf("%d of %d tasks did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only those",
+			len(left), len(p.Tasks), strings.Join(ids, ", "), filepath.Join(o.Out, "summary.html"), files.Logs)
+	}
+	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
+	return nil
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
