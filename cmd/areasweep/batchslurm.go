@@ -137,7 +137,7 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if !o.Slurm.Wait {
 		return nil
 	}
-	if err := (slurm.Submitter{}).Wait(ctx, 2*time.Second, sub.ArrayJob, sub.MergeJob); err != nil {
+	if err := (slurm.Submitter{}).Wait(ctx, time.Second, sub.ArrayJob, sub.MergeJob); err != nil {
 		return err
 	}
 	if left := p.Pending(); len(left) > 0 {

@@ -1,0 +1,140 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// startCluster starts the one-node SLURM cluster of scripts/slurm-local.sh
+// (installing the packages when missing) and returns the environment
+// for the client commands. It never skips: a machine that cannot run the
+// cluster fails the test, in CI and elsewhere. A cluster the test started
+// is stopped at its end.
+func startCluster(t *testing.T) []string {
+	t.Helper()
+	script, err := filepath.Abs("../../scripts/slurm-local.sh")
+	if err != nil {
+		t.Fatal(err)
+	}
+	wasRunning := exec.Command(script, "status").Run() == nil
+	if out, err := exec.Command(script, "start").CombinedOutput(); err != nil {
+		t.Fatalf("starting the local cluster with %s start failed: %v\n%s", script, err, out)
+	}
+	if !wasRunning {
+		t.Cleanup(func() {
+			if out, err := exec.Command(script, "stop").CombinedOutput(); err != nil {
+				t.Errorf("stopping the cluster: %v\n%s", err, out)
+			}
+		})
+	}
+	line, err := exec.Command(script, "env").Output()
+	if err != nil {
+		t.Fatal(err)
+	}
+	conf := strings.TrimPrefix(strings.TrimSpace(string(line)), "export ")
+	if !strings.HasPrefix(conf, "SLURM_CONF=") {
+		t.Fatalf("%s env printed %q", script, line)
+	}
+	return append(os.Environ(), conf)
+}
+
+// runBinEnv is runBin with the environment env.
+func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int) {
+	t.Helper()
+	cmd := exec.Command(areasweepBin, args...)
+	cmd.Env = env
+	var so, se bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &so, &se
+	err := cmd.Run()
+	code := 0
+	if ee, ok := err.(*exec.ExitError); ok {
+		code = ee.ExitCode()
+	} else if err != nil {
+		t.Fatalf("run %v: %v", args, err)
+	}
+	return so.String(), se.String(), code
+}
+
+// TestBatchOnCluster submits a batch of three small studies to a real
+// one-node SLURM cluster as a job array plus a merge job, waits, and
+// checks that each study's results.json and scores.csv are byte-identical
+// to a plain local run with the same settings and that the merge job
+// wrote the summary. Submitting again runs no task (every one is
+// finished) and only the merge job, which rewrites the same summary.
+func TestBatchOnCluster(t *testing.T) {
+	env := startCluster(t)
+	s := newSmallStudy(t)
+	table := filepath.Join(s.dir, "cluster.csv")
+	body := `# region-buffers: -40,60
+# point-buffers: 40
+# hull-buffers: 0
+# e: 0.05
+# iterations: 30
+id,model,occurrences,region,seed
+alpha,m=model.tif;sq=model2.tif,occ.csv,region.geojson,9
+beta,m=model.tif,occ.csv,region.geojson,11
+gamma,sq=model2.tif,occ.csv,region.geojson,13
+`
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(s.dir, "cluster-out")
+	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait", "--cpus-per-task", "1")
+	logs := filepath.Join(out, batchMarker, "slurm", "logs")
+	if code != 0 {
+		t.Fatalf("exit %d\nstdout %s\nstderr %s\n%s", code, so, se, dumpLogs(logs))
+	}
+	if !strings.Contains(so, "submitted array job") || !strings.Contains(so, "(tasks 1-3)") || !strings.Contains(so, "every task finished") {
+		t.Errorf("stdout:\n%s", so)
+	}
+	for _, c := range []struct {
+		id, seed string
+		models   []string
+	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}, {"gamma", "13", []string{"sq=" + s.model2}}} {
+		plain := filepath.Join(s.dir, "plain-"+c.id)
+		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
+			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
+		}
+		for _, f := range []string{"results.json", "scores.csv"} {
+			want, _ := os.ReadFile(filepath.Join(plain, f))
+			got, err := os.ReadFile(filepath.Join(out, c.id, f))
+			if err != nil || len(want) == 0 || !bytes.Equal(got, want) {
+				t.Errorf("%s/%s from the cluster differs from a plain run (%v)\n%s", c.id, f, err, dumpLogs(logs))
+			}
+		}
+	}
+	summary, err := os.ReadFile(filepath.Join(out, "summary.csv"))
+	if err != nil {
+		t.Fatalf("the merge job wrote no summary: %v\n%s", err, dumpLogs(logs))
+	}
+	if rows := readSummary(t, out); len(rows) != 4 || rows[3]["study"] != "gamma" || rows[3]["status"] != "ok" {
+		t.Errorf("summary rows %v", rows)
+	}
+
+	// Again: nothing left to run, only the merge job.
+	if err := os.Remove(filepath.Join(out, "summary.csv")); err != nil {
+		t.Fatal(err)
+	}
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait")
+	if code != 0 || strings.Contains(so, "submitted array job") || !strings.Contains(so, "3 tasks, 0 not finished") {
+		t.Fatalf("resubmission: exit %d\nstdout %s\nstderr %s", code, so, se)
+	}
+	if again, err := os.ReadFile(filepath.Join(out, "summary.csv")); err != nil || !bytes.Equal(again, summary) {
+		t.Errorf("the merge job alone wrote another summary (%v)", err)
+	}
+}
+
+// dumpLogs returns the job logs, for a failure message.
+func dumpLogs(dir string) string {
+	var b strings.Builder
+	ents, _ := os.ReadDir(dir)
+	for _, e := range ents {
+		data, _ := os.ReadFile(filepath.Join(dir, e.Name()))
+		b.WriteString("--- " + e.Name() + "\n" + string(data))
+	}
+	return b.String()
+}
