@@ -270,3 +270,47 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 		t.Errorf("--jobs 0: exit %d\n%s", code, se)
 	}
 }
+
+// TestBatchMemoryBudget checks that a study whose memory need alone
+// exceeds --memory is refused with the figures and what to do, without
+// stopping the batch (it still writes the summary; exit 1). Every run
+// needs at least GDAL's 64 MiB block cache (pipeline's estimate), so a
+// budget of 1 MiB refuses each study.
+func TestBatchMemoryBudget(t *testing.T) {
+	s := newSmallStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(s.dir, "tight")
+	_, se, code := runBin(t, "batch", table, "--out", out, "--memory", "1M")
+	if code != 1 {
+		t.Fatalf("exit %d, want 1\n%s", code, se)
+	}
+	rows := readSummary(t, out)
+	if len(rows) != 3 {
+		t.Fatalf("summary rows %v", rows)
+	}
+	for _, r := range rows[:2] {
+		if r["status"] != "failed" || !strings.Contains(r["error"], "needs more memory than the budget") || !strings.Contains(r["error"], "--memory") {
+			t.Errorf("study %s: %q %q", r["study"], r["status"], r["error"])
+		}
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--memory", "lots"); code != 2 || !strings.Contains(se, "--memory") {
+		t.Errorf("--memory lots: exit %d\n%s", code, se)
+	}
+}
+
+// TestParseBytes checks the --memory sizes (binary units: 1K = 1024).
+func TestParseBytes(t *testing.T) {
+	for _, c := range []struct {
+		in   string
+		want int64
+	}{{"512M", 512 << 20}, {"8G", 8 << 30}, {"8g", 8 << 30}, {"1.5GiB", 3 << 29}, {"2048", 2048}, {"64KB", 64 << 10}, {"1T", 1 << 40}} {
+		if got, err := parseBytes(c.in); err != nil || got != c.want {
+			t.Errorf("%q: %d %v, want %d", c.in, got, err, c.want)
+		}
+	}
+	for _, bad := range []string{"", "0", "-1G", "G", "lots", "1e30G"} {
+		if _, err := parseBytes(bad); err == nil {
+			t.Errorf("%q accepted", bad)
+		}
+	}
+}
