@@ -41,6 +41,8 @@ type BatchOptions struct {
 	SummaryOnly bool
 	Force       bool
 	Quiet       bool
+	// Template prints an example study table and runs nothing.
+	Template bool
 	// Slurm writes the SLURM job files instead of running; Submit also
 	// submits them (see batchslurm.go).
 	Slurm SlurmOptions
@@ -51,7 +53,10 @@ type BatchOptions struct {
 // study. Its presence also marks --out as a batch's folder.
 const batchMarker = ".areasweep-batch"
 
-const batchExample = `  # run every study of the table, two at a time, into runs/<id>/
+const batchExample = `  # start from the example table
+  areasweep batch --template > studies.csv
+
+  # run every study of the table, two at a time, into runs/<id>/
   areasweep batch studies.csv --out runs --jobs 2
 
   # after fixing a failed study's input: the same command runs only what is not done
@@ -79,8 +84,14 @@ the same command again skips those studies and runs the others (failed ones
 included). Exit status: 0 when every study has results, 1 when at least one failed
 (the summary lists each with its error), 2 for a bad table or flags (nothing ran).`,
 		Example: batchExample,
-		Args:    cobra.ExactArgs(1),
+		Args:    cobra.MaximumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			if opts.Template {
+				return inputs.WriteBatchTemplate(opts.IO.Out)
+			}
+			if len(args) == 0 {
+				return fault.BadInput(errors.New("name the study table: areasweep batch TABLE --out DIR (areasweep batch --template prints an example)"))
+			}
 			opts.Table = args[0]
 			if c.Flags().Changed("memory") {
 				m, err := parseBytes(memory)
@@ -106,6 +117,7 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run nothing: write the summary from the study folders already finished")
 	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished (replacing areasweep's files in their folders)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
+	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
 	return cmd
 }
