@@ -14,6 +14,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -47,6 +48,10 @@ import (
 // replaces these, and only these.
 var outputNames = []string{"results.json", "scores.csv", "extents.gpkg", "extents.csv", "extents.tif",
 	"omitted_points.gpkg", "report.html", "methods.md", "figures", "run.log"}
+
+// shardOutput matches the files a shard writes (shard-I-of-N.aspf and its
+// .log): --force replaces the ones this run wrote, never another shard's.
+var shardOutput = regexp.MustCompile(`^shard-[0-9]+-of-[0-9]+\.(aspf|log)$`)
 
 const (
 	lockSuffix     = ".areasweep-lock"
@@ -440,6 +445,11 @@ func (d *Dir) moveEntries() error {
 	replace := outputNames
 	if d.Demo {
 		replace = append(append([]string{}, outputNames...), "inputs")
+	}
+	for n := range names {
+		if shardOutput.MatchString(n) {
+			replace = append(append([]string{}, replace...), n)
+		}
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {
