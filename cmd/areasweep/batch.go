@@ -37,10 +37,16 @@ type BatchOptions struct {
 	// one); the summary is then not written.
 	Only []string
 	// SummaryOnly writes the summary from the finished study folders and
-	// runs nothing.
+	// runs nothing but the merges of studies whose shards all finished.
 	SummaryOnly bool
-	Force       bool
-	Quiet       bool
+	// Shards splits each study into this many shards of grid rows
+	// (run --shard), merged into the study's folder (1: whole studies).
+	Shards int
+	// Shard, with Only naming one study, runs only that shard (a
+	// scheduler task); 0: every shard.
+	Shard int
+	Force bool
+	Quiet bool
 	// Template prints an example study table and runs nothing.
 	Template bool
 	// Slurm writes the SLURM job files instead of running; Submit also
@@ -114,7 +120,9 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each uses all cores / N workers unless its row sets workers)")
 	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory)")
 	f.StringSliceVar(&opts.Only, "only", nil, "run only these study `IDS` (comma-separated) and write no summary; for scheduler tasks")
-	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run nothing: write the summary from the study folders already finished")
+	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
+	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
+	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
 	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished (replacing areasweep's files in their folders)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
@@ -135,6 +143,10 @@ func (o *BatchOptions) validate() error {
 		return errors.New("--summary-only and --only exclude each other: --only runs studies and writes no summary")
 	case o.Slurm.Enabled && (o.SummaryOnly || len(o.Only) > 0):
 		return errors.New("--slurm writes job files for the whole table; it does not combine with --summary-only or --only")
+	case o.Shards < 1 || o.Shards > maxShards:
+		return fmt.Errorf("--shards is %d; give 1 to %d", o.Shards, maxShards)
+	case o.Shard != 0 && (o.Shard < 1 || o.Shard > o.Shards || len(o.Only) != 1):
+		return fmt.Errorf("--shard %d needs --only with one study and 1 <= I <= --shards (%d)", o.Shard, o.Shards)
 	case o.Slurm.Submit && !o.Slurm.Enabled:
 		return errors.New("--submit needs --slurm")
 	}
@@ -339,17 +351,10 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 		return batchSlurm(ctx, o, studies)
 	}
 	p := &progress{o: o, total: len(studies)}
-	errs := make([]error, len(studies))
-	if !o.SummaryOnly {
-		errs = runStudies(ctx, o, studies, p)
+	errs := runStudies(ctx, o, studies, p)
+	if !o.SummaryOnly || o.Shards > 1 {
 		for i, st := range studies {
-			recordFailure(o.Out, st.id, errs[i])
-		}
-	} else {
-		for i, st := range studies {
-			if s, err := st.state(); err != nil || s != stateDone {
-				errs[i] = readFailure(o.Out, st)
-			}
+			recordFailure(o.Out, st.id, o.Shard, errs[i])
 		}
 	}
 	failed := 0
@@ -379,13 +384,20 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 
 // failurePath is where a study's last error is kept, so that a summary
 // written later (by the scheduler's merge job) can show it.
-func failurePath(out, id string) string { return filepath.Join(out, batchMarker, "failed", id+".txt") }
+// Shard k > 0 has its own record: the shards of a study run as separate
+// scheduler tasks, and one's success must not erase another's failure.
+func failurePath(out, id string, k int) string {
+	if k > 0 {
+		id += ".shard-" + strconv.Itoa(k)
+	}
+	return filepath.Join(out, batchMarker, "failed", id+".txt")
+}
 
 // recordFailure keeps err as the study's last error, or removes the
 // record when err is nil. Best effort: the summary names the study as
 // unfinished without it.
-func recordFailure(out, id string, err error) {
-	p := failurePath(out, id)
+func recordFailure(out, id string, k int, err error) {
+	p := failurePath(out, id, k)
 	if err == nil {
 		os.Remove(p)
 		return
@@ -395,11 +407,15 @@ func recordFailure(out, id string, err error) {
 	}
 }
 
-// readFailure is the error of a study that did not finish: the one its
-// run recorded, else a note that it did not finish.
-func readFailure(out string, st *batchStudy) error {
-	if b, err := os.ReadFile(failurePath(out, st.id)); err == nil && len(b) > 0 {
+// readFailure is the error of a study that did not finish (k = 0) or of
+// its shard k that did not: the one its run recorded, else a note that
+// it did not finish.
+func readFailure(out string, st *batchStudy, k int) error {
+	if b, err := os.ReadFile(failurePath(out, st.id, k)); err == nil && len(b) > 0 {
 		return errors.New(strings.TrimSpace(string(b)))
+	}
+	if k > 0 {
+		return fmt.Errorf("shard %d not finished: %s holds no completion marker (%s); see the job logs", k, shardDir(out, st.id, k), slurm.MarkerName)
 	}
 	return fmt.Errorf("not finished: %s holds no completion marker (%s); see the job logs", st.dir, slurm.MarkerName)
 }
@@ -426,13 +442,29 @@ func claimBatchDir(out string) error {
 	return nil
 }
 
+// unit is one piece of a batch run by batch.Run: a whole study, one
+// shard of it (shard > 0) or the merge of its shards (merge).
+type unit struct {
+	study int
+	shard int
+	merge bool
+}
+
+// shardDir is the folder of shard i of study id: inside the batch's own
+// folder, so that the study folder (the merge's --out) holds no input.
+func shardDir(out, id string, i int) string {
+	return filepath.Join(out, batchMarker, "shards", id, strconv.Itoa(i))
+}
+
 // runStudies runs every study not yet done within the limits and returns
-// each study's error in table order.
+// each study's error in table order: whole, or with --shards N as N
+// shards each followed by the merge of its shards. With --shard I (a
+// scheduler task) only that shard runs; with --summary-only nothing runs
+// but the merges of studies whose shards are all finished.
 func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *progress) []error {
 	errs := make([]error, len(studies))
-	var jobs []batch.Job
-	var idx []int
 	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
+	var todo []int
 	for i, st := range studies {
 		s, err := st.state()
 		switch {
@@ -451,13 +483,93 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		if st.opts.Workers == 0 {
 			st.opts.Workers = workers
 		}
+		todo = append(todo, i)
+	}
+	if o.Shards <= 1 {
+		var units []unit
+		for _, i := range todo {
+			if o.SummaryOnly {
+				errs[i] = readFailure(o.Out, studies[i], 0)
+				continue
+			}
+			units = append(units, unit{study: i})
+		}
+		runUnits(ctx, o, studies, units, errs, p)
+		return errs
+	}
+	var units []unit
+	for _, i := range todo {
+		st := studies[i]
+		for k := 1; k <= o.Shards; k++ {
+			if o.SummaryOnly || (o.Shard > 0 && k != o.Shard) {
+				continue
+			}
+			switch s, err := shardState(o.Out, st, k); {
+			case err != nil:
+				errs[i] = err
+			case s == stateDone:
+				p.line(st.id, fmt.Sprintf("shard %d/%d already finished, skipped", k, o.Shards))
+			default:
+				units = append(units, unit{study: i, shard: k})
+			}
+		}
+	}
+	runUnits(ctx, o, studies, units, errs, p)
+	if o.Shard > 0 {
+		return errs
+	}
+	var merges []unit
+	for _, i := range todo {
+		if errs[i] != nil {
+			continue
+		}
+		var missing []int
+		for k := 1; k <= o.Shards; k++ {
+			if s, _ := shardState(o.Out, studies[i], k); s != stateDone {
+				missing = append(missing, k)
+			}
+		}
+		if len(missing) > 0 {
+			errs[i] = readFailure(o.Out, studies[i], missing[0])
+			continue
+		}
+		merges = append(merges, unit{study: i, merge: true})
+	}
+	runUnits(ctx, o, studies, merges, errs, p)
+	return errs
+}
+
+// shardState reads the marker of shard k of st.
+func shardState(out string, st *batchStudy, k int) (studyState, error) {
+	m, err := batch.ReadMarker(shardDir(out, st.id, k))
+	switch {
+	case err != nil:
+		return statePending, err
+	case m == nil:
+		return statePending, nil
+	case m["settings"] != "" && m["settings"] != st.settings:
+		return stateStale, nil
+	}
+	return stateDone, nil
+}
+
+// runUnits runs units within the limits (each needs its study's memory
+// estimate) and stores the first error of each study in errs.
+func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units []unit, errs []error, p *progress) {
+	var jobs []batch.Job
+	var run []unit
+	for _, u := range units {
+		st := studies[u.study]
+		if errs[u.study] != nil {
+			continue
+		}
 		need, err := pipeline.Estimate(st.opts.Options)
 		if err != nil {
-			errs[i] = err
+			errs[u.study] = err
 			continue
 		}
 		jobs = append(jobs, batch.Job{ID: st.id, Need: need})
-		idx = append(idx, i)
+		run = append(run, u)
 	}
 	budget := o.Memory
 	if budget == 0 {
@@ -466,31 +578,66 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		}
 	}
 	runErrs := batch.Run(ctx, jobs, batch.Limits{Jobs: o.Jobs, Budget: budget}, func(ctx context.Context, k int) error {
-		st := studies[idx[k]]
-		p.line(st.id, "started")
+		u := run[k]
+		st := studies[u.study]
+		what := ""
+		switch {
+		case u.shard > 0:
+			what = fmt.Sprintf("shard %d/%d", u.shard, o.Shards)
+		case u.merge:
+			what = fmt.Sprintf("merge of %d shards", o.Shards)
+		}
+		p.line(st.id, strings.TrimSpace(what+" started"))
 		t0 := time.Now()
-		err := runStudy(ctx, st)
+		err := runUnit(ctx, o, st, u)
 		if err != nil {
-			p.line(st.id, "failed: "+oneLine(err.Error()))
+			p.line(st.id, strings.TrimSpace(what+" failed: ")+" "+oneLine(err.Error()))
 			return err
 		}
-		p.line(st.id, fmt.Sprintf("finished in %.1f s", time.Since(t0).Seconds()))
+		p.line(st.id, strings.TrimSpace(fmt.Sprintf("%s finished in %.1f s", what, time.Since(t0).Seconds())))
 		return nil
 	})
 	for k, err := range runErrs {
+		u := run[k]
+		if err == nil || errs[u.study] != nil {
+			continue
+		}
 		if errors.Is(err, batch.ErrTooLarge) {
 			err = fmt.Errorf("%w; give more with --memory, or make the study smaller (coarser or clipped rasters, fewer extents or workers)", err)
 		}
-		errs[idx[k]] = err
+		if u.shard > 0 {
+			err = fmt.Errorf("shard %d/%d: %w", u.shard, o.Shards, err)
+		}
+		errs[u.study] = err
 	}
-	return errs
 }
 
-// runStudy runs one study into its folder and writes its marker.
-func runStudy(ctx context.Context, st *batchStudy) error {
+// runUnit runs one unit and writes its completion marker: the study's
+// folder for a whole study or a merge, the shard's folder for a shard.
+func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error {
 	po := st.opts.Options
 	po.Quiet, po.Version = true, version
-	if _, err := pipeline.Run(ctx, po, pipeline.IO{ErrOut: discard{}, Log: &pipeline.Log{}}); err != nil {
+	pio := pipeline.IO{ErrOut: discard{}, Log: &pipeline.Log{}}
+	if u.shard > 0 {
+		po.Out = shardDir(o.Out, st.id, u.shard)
+		if s, _ := shardState(o.Out, st, u.shard); s == stateStale {
+			po.Force = true
+		}
+		if err := pipeline.RunShard(ctx, po, pio, u.shard, o.Shards); err != nil {
+			return err
+		}
+		return batch.WriteMarker(po.Out, batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings})
+	}
+	if u.merge {
+		files := make([]string, o.Shards)
+		for k := range files {
+			files[k] = shardDir(o.Out, st.id, k+1)
+		}
+		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: version}
+		if _, err := pipeline.Merge(ctx, mo, pio); err != nil {
+			return err
+		}
+	} else if _, err := pipeline.Run(ctx, po, pio); err != nil {
 		return err
 	}
 	sum, err := batch.FileSHA256(filepath.Join(st.dir, "results.json"))

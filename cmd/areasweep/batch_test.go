@@ -314,3 +314,46 @@ func TestParseBytes(t *testing.T) {
 		}
 	}
 }
+
+// TestBatchShards runs the batch of batchTable with every study split into
+// two shards of grid rows, merged into the study's folder: the studies
+// equal plain runs byte for byte, the broken study fails in its shards
+// and is listed, and a second run skips everything finished.
+func TestBatchShards(t *testing.T) {
+	s := newSmallStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(s.dir, "sharded")
+	_, se, code := runBin(t, "batch", table, "--out", out, "--shards", "2", "--jobs", "2")
+	if code != 1 {
+		t.Fatalf("exit %d, want 1\n%s", code, se)
+	}
+	for _, want := range []string{"alpha: shard 1/2 started", "alpha: shard 2/2 started", "alpha: merge of 2 shards finished", "broken: shard 1/2 failed"} {
+		if !strings.Contains(se, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, se)
+		}
+	}
+	for _, c := range []struct {
+		id, seed string
+		models   []string
+	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}} {
+		plain := filepath.Join(s.dir, "plain-"+c.id)
+		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
+			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
+		}
+		for _, f := range []string{"results.json", "scores.csv", "report.html"} {
+			want, _ := os.ReadFile(filepath.Join(plain, f))
+			got, err := os.ReadFile(filepath.Join(out, c.id, f))
+			if err != nil || len(want) == 0 || !bytes.Equal(got, want) {
+				t.Errorf("%s/%s from 2 shards differs from a plain run (%v)", c.id, f, err)
+			}
+		}
+	}
+	rows := readSummary(t, out)
+	if len(rows) != 4 || rows[3]["status"] != "failed" || !strings.HasPrefix(rows[3]["error"], "shard 1/2: ") {
+		t.Errorf("summary rows %v", rows)
+	}
+	_, se, code = runBin(t, "batch", table, "--out", out, "--shards", "2", "--jobs", "2")
+	if code != 1 || !strings.Contains(se, "alpha: already finished, skipped") || strings.Contains(se, "alpha: shard") {
+		t.Errorf("second run: exit %d\n%s", code, se)
+	}
+}

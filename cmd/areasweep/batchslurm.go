@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"time"
 
@@ -30,7 +31,7 @@ type SlurmOptions struct {
 }
 
 func bindSlurmFlags(f *pflag.FlagSet, o *SlurmOptions) {
-	f.BoolVar(&o.Enabled, "slurm", false, "write a SLURM job array (one task per study) and a merge job that writes the summary, instead of running")
+	f.BoolVar(&o.Enabled, "slurm", false, "write a SLURM job array (one task per study, or per study and shard with --shards) and a merge job that merges the shards and writes the summary, instead of running")
 	f.BoolVar(&o.Submit, "submit", false, "with --slurm: submit the unfinished tasks and the merge job with sbatch")
 	f.BoolVar(&o.Wait, "wait", false, "with --submit: wait until the jobs have left the queue and report the tasks that did not finish")
 	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs")
@@ -83,7 +84,13 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true}
 	var need int64
 	for _, st := range studies {
-		p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: 1, Shards: 1, Out: st.dir})
+		if o.Shards <= 1 {
+			p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: 1, Shards: 1, Out: st.dir})
+		} else {
+			for k := 1; k <= o.Shards; k++ {
+				p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: k, Shards: o.Shards, Out: shardDir(out, st.id, k)})
+			}
+		}
 		so := st.opts.Options
 		so.Workers = o.Slurm.CPUs
 		// A study whose inputs cannot be read still gets its task: it
@@ -99,6 +106,11 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 	}
 	p.TaskCommand = base + ` --jobs 1 --only "$AREASWEEP_STUDY"`
 	p.MergeCommand = base + " --summary-only"
+	if o.Shards > 1 {
+		n := strconv.Itoa(o.Shards)
+		p.TaskCommand = base + " --jobs 1 --shards " + n + ` --only "$AREASWEEP_STUDY" --shard "$AREASWEEP_SHARD"`
+		p.MergeCommand = base + " --shards " + n + " --summary-only"
+	}
 	return p, nil
 }
 
@@ -113,7 +125,18 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if err != nil {
 		return fault.Internal(err)
 	}
-	pending := p.Pending()
+	// A study already merged needs none of its shards again, even if
+	// their folders were removed since.
+	var pending []int
+	for _, k := range p.Pending() {
+		for _, st := range studies {
+			if st.id == p.Tasks[k-1].Study {
+				if s, _ := st.state(); s != stateDone {
+					pending = append(pending, k)
+				}
+			}
+		}
+	}
 	w := o.IO.Out
 	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, plural(p.CPUs))
 	fmt.Fprintf(w, "merge job: %s\nmanifest:  %s\nlogs:      %s\n", files.Merge, files.Manifest, files.Logs)
@@ -140,13 +163,15 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if err := (slurm.Submitter{}).Wait(ctx, time.Second, sub.ArrayJob, sub.MergeJob); err != nil {
 		return err
 	}
-	if left := p.Pending(); len(left) > 0 {
-		var ids []string
-		for _, k := range left {
-			ids = append(ids, p.Tasks[k-1].Study)
+	var notDone []string
+	for _, st := range studies {
+		if s, _ := st.state(); s != stateDone {
+			notDone = append(notDone, st.id)
 		}
-		return fmt.Errorf("%d of %d tasks did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only those",
-			len(left), len(p.Tasks), strings.Join(ids, ", "), filepath.Join(o.Out, "summary.html"), files.Logs)
+	}
+	if len(notDone) > 0 {
+		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks",
+			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs)
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
 	return nil

@@ -59,8 +59,9 @@ func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int)
 	return so.String(), se.String(), code
 }
 
-// TestBatchOnCluster submits a batch of three small studies to a real
-// one-node SLURM cluster as a job array plus a merge job, waits, and
+// TestBatchOnCluster submits a batch of three small studies, two shards
+// each, to a real one-node SLURM cluster as a job array of six tasks plus
+// a merge job (merging each study's shards, then the summary), waits, and
 // checks that each study's results.json and scores.csv are byte-identical
 // to a plain local run with the same settings and that the merge job
 // wrote the summary. Submitting again runs no task (every one is
@@ -83,12 +84,12 @@ gamma,sq=model2.tif,occ.csv,region.geojson,13
 		t.Fatal(err)
 	}
 	out := filepath.Join(s.dir, "cluster-out")
-	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait", "--cpus-per-task", "1")
+	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--shards", "2", "--slurm", "--submit", "--wait", "--cpus-per-task", "1")
 	logs := filepath.Join(out, batchMarker, "slurm", "logs")
 	if code != 0 {
 		t.Fatalf("exit %d\nstdout %s\nstderr %s\n%s", code, so, se, dumpLogs(logs))
 	}
-	if !strings.Contains(so, "submitted array job") || !strings.Contains(so, "(tasks 1-3)") || !strings.Contains(so, "every task finished") {
+	if !strings.Contains(so, "submitted array job") || !strings.Contains(so, "(tasks 1-6)") || !strings.Contains(so, "every task finished") {
 		t.Errorf("stdout:\n%s", so)
 	}
 	for _, c := range []struct {
@@ -119,8 +120,8 @@ gamma,sq=model2.tif,occ.csv,region.geojson,13
 	if err := os.Remove(filepath.Join(out, "summary.csv")); err != nil {
 		t.Fatal(err)
 	}
-	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait")
-	if code != 0 || strings.Contains(so, "submitted array job") || !strings.Contains(so, "3 tasks, 0 not finished") {
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--shards", "2", "--slurm", "--submit", "--wait")
+	if code != 0 || strings.Contains(so, "submitted array job") || !strings.Contains(so, "6 tasks, 0 not finished") {
 		t.Fatalf("resubmission: exit %d\nstdout %s\nstderr %s", code, so, se)
 	}
 	if again, err := os.ReadFile(filepath.Join(out, "summary.csv")); err != nil || !bytes.Equal(again, summary) {
