@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -117,7 +118,7 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	}
 	f := cmd.Flags()
 	f.StringVar(&opts.Out, "out", "", "output `DIR`: one folder per study, and the summary")
-	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each uses all cores / N workers unless its row sets workers)")
+	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each with all cores / N scoring workers; the results do not depend on it)")
 	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory)")
 	f.StringSliceVar(&opts.Only, "only", nil, "run only these study `IDS` (comma-separated) and write no summary; for scheduler tasks")
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
@@ -617,7 +618,7 @@ func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units
 func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error {
 	po := st.opts.Options
 	po.Quiet, po.Version = true, version
-	pio := pipeline.IO{ErrOut: discard{}, Log: &pipeline.Log{}}
+	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}}
 	if u.shard > 0 {
 		po.Out = shardDir(o.Out, st.id, u.shard)
 		if s, _ := shardState(o.Out, st, u.shard); s == stateStale {
@@ -692,8 +693,3 @@ func (p *progress) line(id, what string) {
 
 // oneLine joins an error message's lines.
 func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }
-
-// discard is an io.Writer that drops everything.
-type discard struct{}
-
-func (discard) Write(p []byte) (int, error) { return len(p), nil }

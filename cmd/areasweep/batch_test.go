@@ -269,6 +269,27 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 	if _, se, code := runBin(t, "batch", table, "--out", out, "--jobs", "0"); code != 2 || !strings.Contains(se, "--jobs") {
 		t.Errorf("--jobs 0: exit %d\n%s", code, se)
 	}
+	// An --only id the table does not hold; a --shard without --only.
+	good := filepath.Join(s.dir, "good.csv")
+	if err := os.WriteFile(good, []byte("id,model,occurrences,region\nok1,m=model.tif,occ.csv,region.geojson\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, se, code := runBin(t, "batch", good, "--out", out, "--only", "nosuch"); code != 2 || !strings.Contains(se, "--only names nosuch") {
+		t.Errorf("--only nosuch: exit %d\n%s", code, se)
+	}
+	if _, se, code := runBin(t, "batch", good, "--out", out, "--shards", "2", "--shard", "1"); code != 2 || !strings.Contains(se, "--shard 1 needs --only") {
+		t.Errorf("--shard without --only: exit %d\n%s", code, se)
+	}
+	// An existing folder that is not a batch's is refused.
+	other := filepath.Join(s.dir, "other")
+	os.MkdirAll(other, 0o755)
+	os.WriteFile(filepath.Join(other, "notes.txt"), []byte("mine"), 0o644)
+	if _, se, code := runBin(t, "batch", good, "--out", other); code != 2 || !strings.Contains(se, "not a batch's folder") {
+		t.Errorf("foreign --out: exit %d\n%s", code, se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("--out was created by a refused command")
+	}
 }
 
 // TestBatchMemoryBudget checks that a study whose memory need alone

@@ -6,6 +6,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 )
 
@@ -16,6 +17,7 @@ import (
 // is stopped at its end.
 func startCluster(t *testing.T) []string {
 	t.Helper()
+	lockCluster(t)
 	script, err := filepath.Abs("../../scripts/slurm-local.sh")
 	if err != nil {
 		t.Fatal(err)
@@ -40,6 +42,22 @@ func startCluster(t *testing.T) []string {
 		t.Fatalf("%s env printed %q", script, line)
 	}
 	return append(os.Environ(), conf)
+}
+
+// lockCluster holds an exclusive lock on a file shared by every test that
+// uses the local cluster, until the test ends, so that tests of different
+// packages (run in parallel by go test ./...) never stop the cluster under
+// one another. The same lock is taken by cmd/internal/slurm's cluster test.
+func lockCluster(t *testing.T) {
+	t.Helper()
+	f, err := os.OpenFile(filepath.Join(os.TempDir(), "areasweep-slurm-test.lock"), os.O_CREATE|os.O_RDWR, 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() }) // closing releases the lock, after the cluster's stop
 }
 
 // runBinEnv is runBin with the environment env.

@@ -8,6 +8,7 @@ import (
 	"reflect"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 	"time"
 )
@@ -24,6 +25,7 @@ import (
 // resubmits only the pending task, and finally checks that a failing task
 // leaves no marker and keeps the afterok merge job from running.
 func TestClusterArray(t *testing.T) {
+	lockCluster(t)
 	script, err := filepath.Abs("../../../scripts/slurm-local.sh")
 	if err != nil {
 		t.Fatal(err)
@@ -169,4 +171,20 @@ touch "$AREASWEEP_OUT/ok"`)
 	if _, err := os.Stat(filepath.Join(fdir, "merged")); err == nil {
 		t.Fatal("the merge job ran although a task failed")
 	}
+}
+
+// lockCluster holds an exclusive lock on a file shared by every test that
+// uses the local cluster, until the test ends, so that tests of different
+// packages (run in parallel by go test ./...) never stop the cluster under
+// one another (cmd/areasweep's batch test takes the same lock).
+func lockCluster(t *testing.T) {
+	t.Helper()
+	f, err := os.OpenFile(filepath.Join(os.TempDir(), "areasweep-slurm-test.lock"), os.O_CREATE|os.O_RDWR, 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() }) // closing releases the lock, after the cluster's stop
 }
