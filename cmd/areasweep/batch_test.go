@@ -10,8 +10,69 @@ import (
 	"regexp"
 	"slices"
 	"strings"
+	"sync"
 	"testing"
 )
+
+// batchShared holds the inputs the batch tests share and the plain runs
+// they compare with, made once: the same input paths give the same
+// results.json, so one plain run of a study serves every test.
+var batchShared struct {
+	once  sync.Once
+	s     *smallStudy
+	err   error
+	mu    sync.Mutex
+	plain map[string]string
+}
+
+// sharedStudy returns newSmallStudy's inputs copied into a folder that
+// lives as long as the test binary's temporary folder.
+func sharedStudy(t *testing.T) *smallStudy {
+	t.Helper()
+	batchShared.once.Do(func() {
+		s := newSmallStudy(t)
+		dir := filepath.Join(filepath.Dir(areasweepBin), "batch-inputs")
+		if batchShared.err = os.MkdirAll(dir, 0o755); batchShared.err != nil {
+			return
+		}
+		c := *s
+		c.dir = dir
+		for _, p := range []*string{&c.model, &c.model2, &c.occ, &c.region, &c.far} {
+			b, err := os.ReadFile(*p)
+			if err != nil {
+				batchShared.err = err
+				return
+			}
+			*p = filepath.Join(dir, filepath.Base(*p))
+			if batchShared.err = os.WriteFile(*p, b, 0o644); batchShared.err != nil {
+				return
+			}
+		}
+		batchShared.s, batchShared.plain = &c, map[string]string{}
+	})
+	if batchShared.err != nil {
+		t.Fatal(batchShared.err)
+	}
+	return batchShared.s
+}
+
+// plainRun returns the --out folder of a plain run with the settings of a
+// row of the batch tests' tables (seed and models), running it once.
+func plainRun(t *testing.T, s *smallStudy, seed string, models ...string) string {
+	t.Helper()
+	key := seed + " " + strings.Join(models, " ")
+	batchShared.mu.Lock()
+	defer batchShared.mu.Unlock()
+	if out, ok := batchShared.plain[key]; ok {
+		return out
+	}
+	out := filepath.Join(s.dir, fmt.Sprintf("plain-%d", len(batchShared.plain)))
+	if _, se, code := runBin(t, s.studyArgs(out, seed, models...)...); code != 0 {
+		t.Fatalf("plain run (seed %s, models %v): exit %d: %s", seed, models, code, se)
+	}
+	batchShared.plain[key] = out
+	return out
+}
 
 // batchTable writes a study table of three small studies on s's inputs
 // and returns its path: alpha (two models), beta (one model, another
@@ -109,9 +170,10 @@ func readSummary(t *testing.T, dir string) []map[string]string {
 // --jobs 1 and --jobs 2 give the same bytes; a second run skips the
 // finished studies and retries the failed one, leaving the same summary.
 func TestBatch(t *testing.T) {
-	s := newSmallStudy(t)
+	s := sharedStudy(t)
 	table := batchTable(t, s)
-	outs := []string{filepath.Join(s.dir, "jobs1"), filepath.Join(s.dir, "jobs2")}
+	tmp := t.TempDir()
+	outs := []string{filepath.Join(tmp, "jobs1"), filepath.Join(tmp, "jobs2")}
 	for i, jobs := range []string{"1", "2"} {
 		so, se, code := runBin(t, "batch", table, "--out", outs[i], "--jobs", jobs)
 		if code != 1 {
@@ -153,10 +215,7 @@ func TestBatch(t *testing.T) {
 		id, seed string
 		models   []string
 	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}} {
-		plain := filepath.Join(s.dir, "plain-"+c.id)
-		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
-			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
-		}
+		plain := plainRun(t, s, c.seed, c.models...)
 		for _, f := range []string{"results.json", "scores.csv"} {
 			want, _ := os.ReadFile(filepath.Join(plain, f))
 			if got := a[c.id+"/"+f]; len(want) == 0 || !bytes.Equal(got, want) {
@@ -227,7 +286,7 @@ func TestBatch(t *testing.T) {
 // TestBatchBadTable checks that bad rows are all reported, by line and
 // column, with exit 2, before anything runs: --out is not created.
 func TestBatchBadTable(t *testing.T) {
-	s := newSmallStudy(t)
+	s := sharedStudy(t)
 	table := filepath.Join(s.dir, "bad.csv")
 	body := `# iterations: 30
 id,model,occurrences,region,e
@@ -239,7 +298,7 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	out := filepath.Join(s.dir, "out")
+	out := filepath.Join(t.TempDir(), "out")
 	_, se, code := runBin(t, "batch", table, "--out", out)
 	if code != 2 {
 		t.Fatalf("exit %d, want 2\n%s", code, se)
@@ -281,7 +340,7 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 		t.Errorf("--shard without --only: exit %d\n%s", code, se)
 	}
 	// An existing folder that is not a batch's is refused.
-	other := filepath.Join(s.dir, "other")
+	other := filepath.Join(t.TempDir(), "other")
 	os.MkdirAll(other, 0o755)
 	os.WriteFile(filepath.Join(other, "notes.txt"), []byte("mine"), 0o644)
 	if _, se, code := runBin(t, "batch", good, "--out", other); code != 2 || !strings.Contains(se, "not a batch's folder") {
@@ -298,9 +357,9 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 // needs at least GDAL's 64 MiB block cache (pipeline's estimate), so a
 // budget of 1 MiB refuses each study.
 func TestBatchMemoryBudget(t *testing.T) {
-	s := newSmallStudy(t)
+	s := sharedStudy(t)
 	table := batchTable(t, s)
-	out := filepath.Join(s.dir, "tight")
+	out := filepath.Join(t.TempDir(), "tight")
 	_, se, code := runBin(t, "batch", table, "--out", out, "--memory", "1M")
 	if code != 1 {
 		t.Fatalf("exit %d, want 1\n%s", code, se)
@@ -341,9 +400,9 @@ func TestParseBytes(t *testing.T) {
 // equal plain runs byte for byte, the broken study fails in its shards
 // and is listed, and a second run skips everything finished.
 func TestBatchShards(t *testing.T) {
-	s := newSmallStudy(t)
+	s := sharedStudy(t)
 	table := batchTable(t, s)
-	out := filepath.Join(s.dir, "sharded")
+	out := filepath.Join(t.TempDir(), "sharded")
 	_, se, code := runBin(t, "batch", table, "--out", out, "--shards", "2", "--jobs", "2")
 	if code != 1 {
 		t.Fatalf("exit %d, want 1\n%s", code, se)
@@ -357,10 +416,7 @@ func TestBatchShards(t *testing.T) {
 		id, seed string
 		models   []string
 	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}} {
-		plain := filepath.Join(s.dir, "plain-"+c.id)
-		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
-			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
-		}
+		plain := plainRun(t, s, c.seed, c.models...)
 		for _, f := range []string{"results.json", "scores.csv", "report.html"} {
 			want, _ := os.ReadFile(filepath.Join(plain, f))
 			got, err := os.ReadFile(filepath.Join(out, c.id, f))

@@ -2,12 +2,15 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 )
 
 // startCluster starts the one-node SLURM cluster of scripts/slurm-local.sh
@@ -60,14 +63,35 @@ func lockCluster(t *testing.T) {
 	t.Cleanup(func() { f.Close() }) // closing releases the lock, after the cluster's stop
 }
 
-// runBinEnv is runBin with the environment env.
+// clusterWait bounds one submit-and-wait command of the cluster test: far
+// above the 20 to 40 s it takes on an idle 2-core machine, so that a
+// cluster that never runs the jobs fails the test instead of hanging it.
+const clusterWait = 6 * time.Minute
+
+// runBinEnv is runBin with the environment env, killed (and the test
+// failed, with the queue) after clusterWait.
 func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int) {
 	t.Helper()
-	cmd := exec.Command(areasweepBin, args...)
+	ctx, cancel := context.WithTimeout(context.Background(), clusterWait)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, areasweepBin, args...)
 	cmd.Env = env
 	var so, se bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &so, &se
 	err := cmd.Run()
+	if ctx.Err() != nil {
+		q := exec.Command("squeue", "-o", "%i %j %T %M %R")
+		q.Env = env
+		queue, _ := q.CombinedOutput()
+		// The jobs this command submitted would wait in the queue for
+		// nobody: cancel them.
+		for _, m := range regexp.MustCompile(`submitted (?:array|merge) job ([0-9]+)`).FindAllStringSubmatch(so.String(), -1) {
+			c := exec.Command("scancel", m[1])
+			c.Env = env
+			c.Run()
+		}
+		t.Fatalf("%v did not end within %v: the cluster did not run the jobs (busy with other jobs, or down); queue:\n%s\nstdout %s\nstderr %s", args, clusterWait, queue, so.String(), se.String())
+	}
 	code := 0
 	if ee, ok := err.(*exec.ExitError); ok {
 		code = ee.ExitCode()
@@ -86,7 +110,7 @@ func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int)
 // finished) and only the merge job, which rewrites the same summary.
 func TestBatchOnCluster(t *testing.T) {
 	env := startCluster(t)
-	s := newSmallStudy(t)
+	s := sharedStudy(t)
 	table := filepath.Join(s.dir, "cluster.csv")
 	body := `# region-buffers: -40,60
 # point-buffers: 40
@@ -101,7 +125,7 @@ gamma,sq=model2.tif,occ.csv,region.geojson,13
 	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	out := filepath.Join(s.dir, "cluster-out")
+	out := filepath.Join(t.TempDir(), "cluster-out")
 	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--shards", "2", "--slurm", "--submit", "--wait", "--cpus-per-task", "1")
 	logs := filepath.Join(out, batchMarker, "slurm", "logs")
 	if code != 0 {
@@ -114,10 +138,7 @@ gamma,sq=model2.tif,occ.csv,region.geojson,13
 		id, seed string
 		models   []string
 	}{{"alpha", "9", []string{"m=" + s.model, "sq=" + s.model2}}, {"beta", "11", []string{"m=" + s.model}}, {"gamma", "13", []string{"sq=" + s.model2}}} {
-		plain := filepath.Join(s.dir, "plain-"+c.id)
-		if _, se, code := runBin(t, s.studyArgs(plain, c.seed, c.models...)...); code != 0 {
-			t.Fatalf("plain run of %s: exit %d: %s", c.id, code, se)
-		}
+		plain := plainRun(t, s, c.seed, c.models...)
 		for _, f := range []string{"results.json", "scores.csv"} {
 			want, _ := os.ReadFile(filepath.Join(plain, f))
 			got, err := os.ReadFile(filepath.Join(out, c.id, f))
