@@ -167,7 +167,7 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return fault.BadInput(fmt.Errorf("%v (see 'areasweep %s --help')", err, c.Name()))
+		return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
 	})
 	root.AddCommand(
 		newRunCmd(streams, nil),

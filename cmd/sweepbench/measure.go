@@ -178,7 +178,7 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	cmd.Stderr = &stderr
 	start := time.Now()
 	if err := cmd.Start(); err != nil {
-		return 0, 0, fmt.Errorf("%s: %v", b.bin, err)
+		return 0, 0, fmt.Errorf("%s: %w", b.bin, err)
 	}
 	// The peak RSS is read from /proc while the run lives: the rusage of
 	// a child started from this (large) process would report this
@@ -206,7 +206,7 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	close(done)
 	rss := <-peak
 	if err != nil {
-		return 0, 0, fmt.Errorf("%s %s: %v\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
+		return 0, 0, fmt.Errorf("%s %s: %w\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
 	}
 	return t, rss, nil
 }

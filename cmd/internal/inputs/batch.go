@@ -395,7 +395,7 @@ func (p *batchParser) parseCSV(data []byte) {
 				line = pe.StartLine + lines
 				err = pe.Err
 			}
-			p.add(line, "", "", fmt.Errorf("%w: %v; quote cells that hold the delimiter or quotes (\"a,b\")", ErrBatchSyntax, err))
+			p.add(line, "", "", fmt.Errorf("%w: %w; quote cells that hold the delimiter or quotes (\"a,b\")", ErrBatchSyntax, err))
 			return
 		}
 		line, _ := r.FieldPos(0)

@@ -105,7 +105,7 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 	d := &Dir{Out: filepath.Clean(out), force: force}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: %v", out, err))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
@@ -123,13 +123,13 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
+			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
 		}
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %v", out, Cause(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
 	}
 	if err := d.makeParent(out); err != nil {
 		return nil, err
@@ -149,7 +149,7 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 	}
 	if err != nil {
 		d.release()
-		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, where, Cause(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
 	}
 	d.Stage = stage
 	active.mu.Lock()
@@ -171,18 +171,18 @@ func visible(entries []os.DirEntry) []os.DirEntry {
 	return v
 }
 
-// Cause is the part of a file-system error a user needs (the cause,
-// without the repeated path).
-func Cause(err error) string {
+// Cause is the part of a file-system error a user needs: the cause,
+// without the repeated path (err itself when it is not a path error).
+func Cause(err error) error {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
-		return pe.Err.Error()
+		return pe.Err
 	}
 	var le *os.LinkError
 	if errors.As(err, &le) {
-		return le.Err.Error()
+		return le.Err
 	}
-	return err.Error()
+	return err
 }
 
 // realPath resolves symbolic links in the longest existing prefix of an
@@ -256,7 +256,7 @@ func (d *Dir) makeParent(out string) error {
 		}
 	}
 	if err := os.MkdirAll(d.parent, MkdirPerm()); err != nil {
-		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
+		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 	}
 	d.created = missing
 	return nil
@@ -280,7 +280,7 @@ func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
 		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
+			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())
@@ -395,7 +395,7 @@ func (d *Dir) Finish() error {
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
-			return fmt.Errorf("cannot move the results into %s: %v", d.Out, Cause(err))
+			return fmt.Errorf("cannot move the results into %s: %w", d.Out, Cause(err))
 		}
 		// --out appeared during the run: move the entries in one by one.
 	}
@@ -416,7 +416,7 @@ func (d *Dir) Finish() error {
 func (d *Dir) moveEntries() error {
 	staged, err := os.ReadDir(d.Stage)
 	if err != nil {
-		return fmt.Errorf("cannot read the staged results %s: %v", d.Stage, Cause(err))
+		return fmt.Errorf("cannot read the staged results %s: %w", d.Stage, Cause(err))
 	}
 	names := map[string]bool{}
 	for _, e := range staged {
@@ -444,7 +444,7 @@ func (d *Dir) moveEntries() error {
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {
 		os.RemoveAll(d.Stage)
-		return fmt.Errorf("cannot write in %s: %v", d.Out, Cause(err))
+		return fmt.Errorf("cannot write in %s: %w", d.Out, Cause(err))
 	}
 	var setAside, moved []string
 	undo := func() {
@@ -463,7 +463,7 @@ func (d *Dir) moveEntries() error {
 		}
 		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot replace %s: %v", filepath.Join(d.Out, n), Cause(err))
+			return fmt.Errorf("cannot replace %s: %w", filepath.Join(d.Out, n), Cause(err))
 		}
 		setAside = append(setAside, n)
 	}
@@ -471,7 +471,7 @@ func (d *Dir) moveEntries() error {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot move %s into %s: %v", n, d.Out, Cause(err))
+			return fmt.Errorf("cannot move %s into %s: %w", n, d.Out, Cause(err))
 		}
 		moved = append(moved, n)
 	}

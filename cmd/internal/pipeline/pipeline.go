@@ -239,7 +239,7 @@ func (s *Study) warn(msg string) {
 
 // WriteFailed words an error while writing the outputs (exit 1).
 func WriteFailed(err error) error {
-	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err)))
+	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err).Error()))
 }
 
 // libraryMessages moves the messages GDAL and its libraries raised outside

@@ -107,7 +107,7 @@ func (s *Study) readPoints() error {
 	if o.OccurrencesCRS != "" {
 		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %v", o.OccurrencesCRS, err))
+			return fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %w", o.OccurrencesCRS, err))
 		}
 		geographic = sr.Geographic()
 		// Any CRS other than WGS84 itself is transformed, a geographic one
@@ -115,7 +115,7 @@ func (s *Study) readPoints() error {
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
 		if !sr.IsSame(wgs) {
 			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
-				return fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %v", o.OccurrencesCRS, err))
+				return fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %w", o.OccurrencesCRS, err))
 			}
 			defer toLL.Close()
 		}
@@ -141,7 +141,7 @@ func (s *Study) readPoints() error {
 	if toLL != nil {
 		okv := make([]bool, n)
 		if err := toLL.TransformEx(lons, lats, nil, okv); err != nil {
-			return fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %v", o.Occurrences, o.OccurrencesCRS, err))
+			return fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %w", o.Occurrences, o.OccurrencesCRS, err))
 		}
 	}
 	xs := make([]float64, n)

@@ -63,7 +63,7 @@ func WriteManifest(w io.Writer, tasks []Task) error {
 	fmt.Fprintln(bw, manifestHeader)
 	for i, t := range tasks {
 		if err := t.check(); err != nil {
-			return fmt.Errorf("%w: task %d: %v", ErrManifest, i+1, err)
+			return fmt.Errorf("%w: task %d: %w", ErrManifest, i+1, err)
 		}
 		fmt.Fprintf(bw, "%s\t%d/%d\t%s\n", t.Study, t.Shard, t.Shards, t.Out)
 	}
@@ -96,7 +96,7 @@ func ReadManifest(r io.Reader, name string) ([]Task, error) {
 		}
 		t := Task{Study: f[0], Shard: i, Shards: n, Out: f[2]}
 		if err := t.check(); err != nil {
-			return nil, fmt.Errorf("%w: %s line %d: %v", ErrManifest, name, line, err)
+			return nil, fmt.Errorf("%w: %s line %d: %w", ErrManifest, name, line, err)
 		}
 		tasks = append(tasks, t)
 	}
@@ -429,7 +429,7 @@ func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
-		return "", fmt.Errorf("%w: sbatch %s: %v: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+		return "", fmt.Errorf("%w: sbatch %s: %w: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
 	}
 	// --parsable prints "JID" or "JID;CLUSTER".
 	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")
