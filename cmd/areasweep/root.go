@@ -68,7 +68,7 @@ func setRunLog(b *pipeline.Log) {
 // removes the run's staging folder and exits with 128+N; a panic is
 // recovered, reported in one line and its trace written to a run.log.
 func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
-	extent.Register()
+	extent.Configure()
 	gdalmsg.Install()
 	sigs := make(chan os.Signal, 1)
 	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)

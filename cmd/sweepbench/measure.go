@@ -14,6 +14,8 @@ import (
 	"sync"
 	"time"
 
+	"areasweep/extent"
+
 	"github.com/airbusgeo/godal"
 )
 
@@ -37,7 +39,7 @@ type row struct {
 }
 
 func (b *bench) runAll(dir string, cells, extents []float64) error {
-	godal.RegisterAll()
+	extent.Configure()
 	var rows []row
 	fmt.Printf("machine: %d cores (GOMAXPROCS %d), %s\n", runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOARCH)
 	fmt.Printf("%-12s %-8s %-9s %-9s %-7s %-11s %-7s %-10s %-12s\n", "cells", "extents", "a bare s", "b run s", "b/a", "c baseline s", "c/b", "b RSS MiB", "b cells/s")
