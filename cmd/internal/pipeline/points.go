@@ -16,6 +16,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/extent/place"
 	"areasweep/report"
 )
 
@@ -182,19 +183,32 @@ func (s *Study) readPoints() error {
 			return fault.BadInput(err)
 		}
 	}
-	var outside, nodata []string
-	for i := range s.points {
-		p := &s.points[i]
-		if p.Status == report.PointOutsideRaster {
-			outside = append(outside, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
-			s.cell[i] = -1
-			continue
+	// Which records are scored: none outside the raster or on no data,
+	// and one per cell and role unless --no-thin (extent/place).
+	rr := place.Records{Cell: s.cell, Valid: pointValid, Role: make([]int, len(s.points))}
+	for i, p := range s.points {
+		if p.Role != "train" {
+			rr.Role[i] = place.Test
 		}
-		if !pointValid[i] {
-			p.Status = report.PointNoData
-			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
-			s.cell[i] = -1
-		}
+	}
+	pl := place.Place(rr, !o.NoThin)
+	s.cell = pl.Cell
+	where := func(i int) string {
+		p := s.points[i]
+		return fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat)
+	}
+	var outside, nodata, pairs []string
+	for _, i := range pl.Outside {
+		outside = append(outside, where(i))
+	}
+	for _, i := range pl.NoData {
+		s.points[i].Status = report.PointNoData
+		nodata = append(nodata, where(i))
+	}
+	for _, d := range pl.Thinned {
+		p := &s.points[d.Record]
+		p.Status = report.PointThinned
+		pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[d.First].ID, p.Role))
 	}
 	if len(outside) > 0 {
 		s.warn(fmt.Sprintf("%d occurrence(s) outside the raster, not scored: %s", len(outside), listSome(outside, 10)))
@@ -202,30 +216,9 @@ func (s *Study) readPoints() error {
 	if len(nodata) > 0 {
 		s.warn(fmt.Sprintf("%d occurrence(s) on no-data cells of %s, not scored: %s", len(nodata), s.models[0].Name, listSome(nodata, 10)))
 	}
-	// Thinning: one presence per cell and role, the first line kept.
-	if !o.NoThin {
-		seen := map[[2]int]int{}
-		thinned := 0
-		var pairs []string
-		for i := range s.points {
-			p := &s.points[i]
-			if s.cell[i] < 0 {
-				continue
-			}
-			key := [2]int{s.cell[i], roleIndex(p.Role)}
-			if first, dup := seen[key]; dup {
-				p.Status = report.PointThinned
-				thinned++
-				pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role))
-				s.cell[i] = -1
-				continue
-			}
-			seen[key] = i
-		}
-		if thinned > 0 {
-			s.logf("thinned: %s", listSome(pairs, 10))
-			s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", thinned))
-		}
+	if len(pairs) > 0 {
+		s.logf("thinned: %s", listSome(pairs, 10))
+		s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", len(pairs)))
 	}
 	c := &s.res.PointCounts
 	for _, p := range s.points {
@@ -277,13 +270,6 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 		}
 	}
 	return errors.New(msg)
-}
-
-func roleIndex(r string) int {
-	if r == "train" {
-		return 0
-	}
-	return 1
 }
 
 func listSome(items []string, n int) string {
