@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/base64"
 	"fmt"
 	"image"
 	"math"
@@ -31,36 +30,6 @@ func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
 	for _, s := range o.segs {
 		c.StrokeLine2(o.ls, trX(s[0]), trY(s[1]), trX(s[2]), trY(s[3]))
 	}
-}
-
-// decodePreview decodes the preview values and masks.
-func decodePreview(pv *Preview) (vals []byte, masks [][]bool, err error) {
-	n := pv.Width * pv.Height
-	if pv.Width <= 0 || pv.Height <= 0 {
-		return nil, nil, fmt.Errorf("report: preview has size %dx%d", pv.Width, pv.Height)
-	}
-	vals, err = base64.StdEncoding.DecodeString(pv.Values)
-	if err != nil {
-		return nil, nil, fmt.Errorf("report: preview values: %w", err)
-	}
-	if len(vals) != n {
-		return nil, nil, fmt.Errorf("report: preview values hold %d bytes, want %d", len(vals), n)
-	}
-	for k, m := range pv.Masks {
-		bits, err := base64.StdEncoding.DecodeString(m)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: preview mask %d: %w", k, err)
-		}
-		if len(bits)*8 < n {
-			return nil, nil, fmt.Errorf("report: preview mask %d holds %d bits, want %d", k, len(bits)*8, n)
-		}
-		mk := make([]bool, n)
-		for i := range mk {
-			mk[i] = bits[i/8]&(1<<(uint(i)%8)) != 0
-		}
-		masks = append(masks, mk)
-	}
-	return vals, masks, nil
 }
 
 // maskEdges returns the boundary of a mask as merged horizontal and

@@ -1,12 +1,10 @@
 package pipeline
 
 import (
-	"encoding/base64"
 	"encoding/binary"
 	"fmt"
 	"hash/fnv"
 	"math"
-	"sort"
 	"time"
 
 	"areasweep/cmd/internal/pass"
@@ -104,42 +102,17 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 		if err != nil {
 			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
 		}
-		sc.Cells, sc.AreaKm2 = out.Cells, float64(out.Area)/pass.AreaUnitsPerKm2
-		sc.TestPoints, sc.TrainPoints = out.TestN, out.TrainN
-		if !out.Scored {
-			sc.NotScored = out.NotScored
-			if out.TestN == 0 {
-				sc.NotScored = "no test points inside this extent"
-			}
+		sc.SetScores(out, pass.AreaUnitsPerKm2)
+		if !sc.Scored {
 			s.res.Scores = append(s.res.Scores, sc)
 			continue
 		}
-		sc.Scored = true
-		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCSE
-		sc.AUCUnweightedSEDeLong = math.Sqrt(out.AUCUnweightedVarDeLong)
 		global, ids := testIDs(k)
-		sc.TestPointIDs, sc.Placements, sc.PlacementsUnweighted = ids, out.Placements, out.PlacementsUnweighted
-		for _, p := range out.PartialROC {
-			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
-				TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
-				Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
-				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
-		}
+		sc.TestPointIDs = ids
 		if sc.AUCBootSD, err = s.evaluator(m.Name, mem.ID, accs[k], test, global, out, set); err != nil {
 			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
 		}
-		for _, t := range out.Thresholds {
-			sc.Thresholds = append(sc.Thresholds, report.Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,
-				AreaFraction: t.AreaFraction, Successes: t.Successes, N: t.N, PBinomial: t.PBinomial})
-		}
-		if out.Boyce.Defined {
-			sc.Boyce = &report.Boyce{Index: out.Boyce.Index, Windows: out.Boyce.Windows, Used: out.Boyce.Used, Mid: out.Boyce.Mid, Ratio: out.Boyce.Ratio}
-		}
-		cv := report.Curve{Model: m.Name, Extent: mem.ID}
-		for _, pt := range out.Curve {
-			cv.X = append(cv.X, pt.X)
-			cv.Y = append(cv.Y, pt.Y)
-		}
+		cv := report.NewCurve(m.Name, mem.ID, out.Curve)
 		s.res.Curves = append(s.res.Curves, cv)
 		s.res.Scores = append(s.res.Scores, sc)
 		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
@@ -167,45 +140,23 @@ func firstRatio(sc report.Score) string {
 	return fmt.Sprintf("%.4f", sc.PartialROC[0].Ratio)
 }
 
-// aucOf is the area-weighted Mann-Whitney AUC of presence values against
-// the background in a:
-//
-//	sum_p [W(< v_p) + W(= v_p)/2] / (n W)
-//
-// with exact areas from the accumulator's bins (Hanley & McNeil 1982).
-func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
-	return a.AUCAgainst(vals)
-}
-
-// rings decomposes each nested chain: for consecutive members A inside B,
-// the ring R = B minus A is scored against the test presences of B, and
-//
-//	AUC_B = (W_A AUC_A' + W_R AUC_R) / (W_A + W_R)
-//
-// holds exactly, where AUC_A' is the AUC of B's presences against A's cells.
+// rings decomposes each nested chain (metrics.DecomposeRing): for
+// consecutive members A inside B, the ring R = B minus A is scored against
+// the test presences of B; ShareOfChange is each ring's share of the
+// chain's change of AUC from its innermost to its outermost member.
 func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
 	for _, name := range s.fam.ChainNames() {
 		chain := s.fam.Chain(name)
 		var rs []report.Ring
 		for i := 1; i < len(chain); i++ {
 			a, b := chain[i-1], chain[i]
-			ring, err := accs[b].Sub(accs[a])
+			r, err := metrics.DecomposeRing(accs[a], accs[b], presence(b, "test"))
 			if err != nil {
 				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, err)
 			}
-			test := presence(b, "test")
-			aIn, ok1 := aucOf(accs[a], test)
-			aRing, ok2 := aucOf(ring, test)
-			aOut, ok3 := aucOf(accs[b], test)
-			if !ok1 || !ok3 {
-				continue
+			if r.Defined {
+				rs = append(rs, report.NewRing(name, model, s.fam.Members[a].ID, s.fam.Members[b].ID, r, pass.AreaUnitsPerKm2))
 			}
-			if !ok2 {
-				aRing = 0
-			}
-			rs = append(rs, report.Ring{Chain: name, Model: model, Inner: s.fam.Members[a].ID, Outer: s.fam.Members[b].ID,
-				InnerAreaKm2: float64(accs[a].Area()) / pass.AreaUnitsPerKm2, RingAreaKm2: float64(ring.Area()) / pass.AreaUnitsPerKm2,
-				RingCells: ring.Cells(), AUCInner: aIn, AUCRing: aRing, AUCOuter: aOut})
 		}
 		if len(rs) == 0 {
 			continue
@@ -221,60 +172,32 @@ func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(i
 	return nil
 }
 
-// omissions lists, per threshold, the test points the model omits. The
-// thresholds come from the training presences and fixed values only, so
-// the lists do not depend on the extent.
+// omissions lists, per threshold metrics tests (metrics.ThresholdRules),
+// the test points the model omits (metrics.Omitted). The thresholds come
+// from the training presences and fixed values only, so the lists do not
+// depend on the extent.
 func (s *Study) omissions(model string, mp modelPoints) {
-	train, test, testIDs := mp.train, mp.test, mp.testIDs
-	type th struct {
-		name metrics.ThresholdRule
-		v    float64
-	}
-	var ths []th
-	if len(train) > 0 {
-		sorted := append([]float64(nil), train...)
-		sort.Float64s(sorted)
-		ths = append(ths, th{metrics.ThresholdMTP, sorted[0]}, th{metrics.ThresholdP10, sorted[metrics.P10Index(len(sorted))]})
-	}
-	for _, v := range s.o.Thresholds {
-		ths = append(ths, th{metrics.ThresholdFixed, v})
-	}
-	for _, t := range ths {
-		om := report.Omission{Model: model, Threshold: t.name, Value: t.v, Omitted: []int{}}
-		for k, v := range test {
-			if v < t.v {
-				om.Omitted = append(om.Omitted, testIDs[k])
-			}
+	for _, t := range metrics.ThresholdRules(mp.train, s.o.Thresholds) {
+		om := report.Omission{Model: model, Threshold: t.Name, Value: t.Value, Omitted: []int{}}
+		for _, i := range metrics.Omitted(t.Value, mp.test) {
+			om.Omitted = append(om.Omitted, mp.testIDs[i])
 		}
 		s.res.Omissions = append(s.res.Omissions, om)
 	}
 }
 
-// preview packs the pass's coarse copy and the extents' masks.
+// preview packs the pass's coarse copy and the extents' masks
+// (report.NewPreview), values scaled over the pass's value range.
 func (s *Study) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 	g, fam := s.grid, s.fam
-	lo, hi := st.Min, st.Max
-	vals := make([]byte, len(pv.Values))
-	for i, v := range pv.Values {
-		switch {
-		case math.IsNaN(v):
-			vals[i] = 255
-		case hi > lo:
-			vals[i] = byte(math.Round(math.Max(0, math.Min(1, (v-lo)/(hi-lo))) * 254))
-		}
-	}
-	p := &report.Preview{Width: pv.Width, Height: pv.Height, Bounds: g.Bounds(), ValueMin: lo, ValueMax: hi,
-		Values: base64.StdEncoding.EncodeToString(vals)}
+	masks := make([][]bool, len(fam.Members))
 	for k := range fam.Members {
-		bits := make([]byte, (len(pv.Values)+7)/8)
+		masks[k] = make([]bool, len(pv.Values))
 		for i := range pv.Values {
-			if fam.Has(k, pv.SourceCell(g, i)) {
-				bits[i/8] |= 1 << uint(i%8)
-			}
+			masks[k][i] = fam.Has(k, pv.SourceCell(g, i))
 		}
-		p.Masks = append(p.Masks, base64.StdEncoding.EncodeToString(bits))
 	}
-	return p
+	return report.NewPreview(pv.Width, pv.Height, g.Bounds(), pv.Values, st.Min, st.Max, masks)
 }
 
 // analyse adds distances between test and training points and the
