@@ -21,6 +21,7 @@ import (
 	"syscall"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/report/outfile"
 )
 
 // The output directory of a run is guarded so that no run loses data:
@@ -83,15 +84,10 @@ var active struct {
 	dirs []*Dir
 }
 
-// Umask is the process umask, read once at start; folders are created with
-// 0777 &^ Umask like mkdir(1) does, and files with 0666 &^ Umask.
-var Umask = readUmask()
-
-func readUmask() os.FileMode {
-	m := syscall.Umask(0)
-	syscall.Umask(m)
-	return os.FileMode(m)
-}
+// Umask is the process umask, read once at start (outfile.Umask); folders
+// are created with 0777 &^ Umask like mkdir(1) does, and files with
+// 0666 &^ Umask.
+var Umask = outfile.Umask
 
 // MkdirPerm is the mode of folders areasweep creates.
 func MkdirPerm() os.FileMode { return 0o777 &^ Umask }

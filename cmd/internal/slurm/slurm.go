@@ -14,6 +14,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"areasweep/report/outfile"
 )
 
 // MarkerName is the file whose presence in a task's output folder means the
@@ -227,42 +229,26 @@ func (p *Plan) Write() (Files, error) {
 	if err := WriteManifest(&m, p.Tasks); err != nil {
 		return Files{}, err
 	}
-	if err := writeAtomic(f.Manifest, m.Bytes(), 0o644); err != nil {
+	if err := writeAtomic(f.Manifest, m.Bytes(), 0o666); err != nil {
 		return Files{}, err
 	}
-	if err := writeAtomic(f.Array, []byte(p.arrayScript(f)), 0o755); err != nil {
+	if err := writeAtomic(f.Array, []byte(p.arrayScript(f)), 0o777); err != nil {
 		return Files{}, err
 	}
 	if p.MergeCommand != "" {
 		f.Merge = filepath.Join(p.Dir, "merge.sh")
-		if err := writeAtomic(f.Merge, []byte(p.mergeScript(f)), 0o755); err != nil {
+		if err := writeAtomic(f.Merge, []byte(p.mergeScript(f)), 0o777); err != nil {
 			return Files{}, err
 		}
 	}
 	return f, nil
 }
 
+// writeAtomic writes one of the plan's files whole or not at all (package
+// outfile), with the package prefix on its error.
 func writeAtomic(path string, data []byte, mode os.FileMode) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("slurm: writing %s: %w", path, err)
-	}
-	_, err = tmp.Write(data)
-	if err == nil {
-		err = tmp.Chmod(mode)
-	}
-	if err == nil {
-		err = tmp.Sync()
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), path)
-	}
-	if err != nil {
-		os.Remove(tmp.Name())
-		return fmt.Errorf("slurm: writing %s: %w", path, err)
+	if err := outfile.Write(path, data, mode); err != nil {
+		return fmt.Errorf("slurm: %w", err)
 	}
 	return nil
 }
