@@ -46,79 +46,21 @@ func (s *Study) split(vals []float64, valid []bool) modelPoints {
 // also each extent's sorting bias. The family must be final (clipped).
 func (s *Study) Score(p *Plan, sums *Sums) error {
 	t0 := time.Now()
-	fam := s.fam
-	m, accs, stats, vals, valid := p.Model, sums.Accs, sums.Stats, p.vals, p.valid
-	floor := 0.0
-	if stats.Area > 0 {
-		floor = float64(stats.FloorArea) / float64(stats.Area)
-	}
-	m.ValueMin, m.ValueMax, m.FloorShare = stats.Min, stats.Max, floor
-	s.res.Models = append(s.res.Models, m)
-	if sums.Preview != nil {
-		s.res.Preview = s.preview(sums.Preview, stats)
-	}
-	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds}
+	m := s.recordModel(p.Model, sums)
 	// Training-presence thresholds come from all of the model's scored
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
-	mp := s.split(vals, valid)
-	set.ThresholdTrain = append([]float64{}, mp.train...)
-	// Presence values per extent: only points inside the extent count.
-	presence := func(k int, role string) []float64 {
-		var out []float64
-		for j, p := range s.points {
-			if p.Status == report.PointScored && p.Role == role && valid[j] && fam.Has(k, s.cell[j]) {
-				out = append(out, vals[j])
-			}
+	mp := s.split(p.vals, p.valid)
+	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds,
+		ThresholdTrain: append([]float64{}, mp.train...)}
+	in := pointsIn{s: s, vals: p.vals, valid: p.valid, global: s.globalTest()}
+	for k := range s.fam.Members {
+		if err := s.scoreExtent(m.Name, k, sums.Accs[k], in, len(mp.test), set); err != nil {
+			return err
 		}
-		return out
 	}
-	nTest := len(mp.test)
-	gidx := s.globalTest()
-	testIDs := func(k int) (global, ids []int) {
-		for j, p := range s.points {
-			if p.Status == report.PointScored && p.Role == "test" && valid[j] && fam.Has(k, s.cell[j]) {
-				global, ids = append(global, gidx[j]), append(ids, p.ID)
-			}
-		}
-		return global, ids
-	}
-	for k, mem := range fam.Members {
-		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
-		switch mem.Status {
-		case extent.StatusEmpty:
-			sc.NotScored = "extent covers no valid cell"
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		case extent.StatusDuplicate:
-			sc.NotScored = "same cells as " + mem.DuplicateOf
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		}
-		train, test := presence(k, "train"), presence(k, "test")
-		sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
-		set.Seed = deriveSeed(s.o.Seed, m.Name, mem.ID)
-		out, err := metrics.Score(accs[k], train, test, set)
-		if err != nil {
-			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
-		}
-		sc.SetScores(out, pass.AreaUnitsPerKm2)
-		if !sc.Scored {
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		}
-		global, ids := testIDs(k)
-		sc.TestPointIDs = ids
-		if sc.AUCBootSD, err = s.evaluator(m.Name, mem.ID, accs[k], test, global, out, set); err != nil {
-			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
-		}
-		cv := report.NewCurve(m.Name, mem.ID, out.Curve)
-		s.res.Curves = append(s.res.Curves, cv)
-		s.res.Scores = append(s.res.Scores, sc)
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
-	}
-	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
-	if err := s.rings(m.Name, accs, presence); err != nil {
+	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(s.fam.Members), time.Since(t0).Seconds())
+	if err := s.rings(m.Name, sums.Accs, in.values); err != nil {
 		return err
 	}
 	s.omissions(m.Name, mp)
@@ -126,6 +68,99 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 		s.res.Settings.DistanceNull = true
 		s.sortingBias(p.null.ix, &p.null.bg)
 	}
+	return nil
+}
+
+// recordModel records model m with its pass's value range and floor share,
+// and the preview when the pass made one.
+func (s *Study) recordModel(m report.Model, sums *Sums) report.Model {
+	st := sums.Stats
+	floor := 0.0
+	if st.Area > 0 {
+		floor = float64(st.FloorArea) / float64(st.Area)
+	}
+	m.ValueMin, m.ValueMax, m.FloorShare = st.Min, st.Max, floor
+	s.res.Models = append(s.res.Models, m)
+	if sums.Preview != nil {
+		s.res.Preview = s.preview(sums.Preview, st)
+	}
+	return m
+}
+
+// pointsIn picks a pass's values at the scored points that lie inside an
+// extent.
+type pointsIn struct {
+	s      *Study
+	vals   []float64 // per point
+	valid  []bool    // per point: the model has data there
+	global []int     // per point: its index among the run's test points
+}
+
+// inside reports whether point j is scored, of role, with data, in member k.
+func (q pointsIn) inside(j, k int, role string) bool {
+	p := q.s.points[j]
+	return p.Status == report.PointScored && p.Role == role && q.valid[j] && q.s.fam.Has(k, q.s.cell[j])
+}
+
+// values returns the values of the points of role inside member k.
+func (q pointsIn) values(k int, role string) []float64 {
+	var out []float64
+	for j := range q.s.points {
+		if q.inside(j, k, role) {
+			out = append(out, q.vals[j])
+		}
+	}
+	return out
+}
+
+// testIDs returns the run-wide indices and the ids of the test points
+// inside member k.
+func (q pointsIn) testIDs(k int) (global, ids []int) {
+	for j, p := range q.s.points {
+		if q.inside(j, k, "test") {
+			global, ids = append(global, q.global[j]), append(ids, p.ID)
+		}
+	}
+	return global, ids
+}
+
+// scoreExtent scores model on member k from its accumulator acc: nothing
+// for an empty or duplicate member, else metrics.Score on the points
+// inside, the paired evaluator and the ROC curve. nTest is the number of
+// the model's scored test points (for those outside the extent).
+func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in pointsIn, nTest int, set metrics.Settings) error {
+	mem := s.fam.Members[k]
+	sc := report.Score{Model: model, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
+	switch mem.Status {
+	case extent.StatusEmpty:
+		sc.NotScored = "extent covers no valid cell"
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	case extent.StatusDuplicate:
+		sc.NotScored = "same cells as " + mem.DuplicateOf
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	}
+	train, test := in.values(k, "train"), in.values(k, "test")
+	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
+	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
+	out, err := metrics.Score(acc, train, test, set)
+	if err != nil {
+		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+	}
+	sc.SetScores(out, pass.AreaUnitsPerKm2)
+	if !sc.Scored {
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	}
+	global, ids := in.testIDs(k)
+	sc.TestPointIDs = ids
+	if sc.AUCBootSD, err = s.evaluator(model, mem.ID, acc, test, global, out, set); err != nil {
+		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+	}
+	s.res.Curves = append(s.res.Curves, report.NewCurve(model, mem.ID, out.Curve))
+	s.res.Scores = append(s.res.Scores, sc)
+	s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", model, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	return nil
 }
 
