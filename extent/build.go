@@ -7,6 +7,8 @@ import (
 	"strconv"
 
 	"github.com/paulmach/orb"
+
+	"areasweep/extent/vocab"
 )
 
 // builder accumulates members while the family is built.
@@ -21,7 +23,7 @@ func (b *builder) add(m Member) (int, error) {
 	if len(b.f.Members) >= MaxMembers {
 		return 0, ErrTooManyMembers
 	}
-	m.Status = StatusOK
+	m.Status = vocab.StatusOK
 	b.f.Members = append(b.f.Members, m)
 	b.f.cells = append(b.f.cells, newCellRuns(b.g.Height))
 	return len(b.f.Members) - 1, nil
@@ -56,7 +58,7 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		return nil, err
 	}
 	f.Base = base
-	baseK, err := b.add(Member{ID: "base", Kind: KindBase, Params: "file=" + baseName(spec.Region)})
+	baseK, err := b.add(Member{ID: vocab.BaseID, Kind: string(vocab.KindBase), Params: "file=" + baseName(spec.Region)})
 	if err != nil {
 		return nil, err
 	}
@@ -91,13 +93,13 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		if err != nil {
 			return nil, err
 		}
-		k, err := b.add(Member{ID: "user_" + x.Name, Kind: KindUser, Params: "file=" + baseName(x.Path)})
+		k, err := b.add(Member{ID: "user_" + x.Name, Kind: string(vocab.KindUser), Params: "file=" + baseName(x.Path)})
 		if err != nil {
 			return nil, err
 		}
 		b.fillRuns(k, s.Grid)
 	}
-	wholeK, err := b.add(Member{ID: "whole_raster", Kind: KindWholeRaster, Params: "all valid cells"})
+	wholeK, err := b.add(Member{ID: vocab.WholeRasterID, Kind: string(vocab.KindWholeRaster), Params: "all valid cells"})
 	if err != nil {
 		return nil, err
 	}

@@ -6,6 +6,8 @@ import (
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"areasweep/extent/vocab"
 )
 
 // LayerName is the name of the GeoPackage layer that holds the family.
@@ -64,7 +66,7 @@ func (f *Family) WriteGeoPackage(path string) error {
 	errs := make([]error, len(f.Members))
 	parallelRows(len(f.Members), func() func(k int) {
 		return func(k int) {
-			if f.Members[k].Status != StatusOK {
+			if f.Members[k].Status != vocab.StatusOK {
 				return
 			}
 			mp, err := f.Outline(k)
@@ -75,7 +77,7 @@ func (f *Family) WriteGeoPackage(path string) error {
 		}
 	})
 	for k, m := range f.Members {
-		if m.Status != StatusOK {
+		if m.Status != vocab.StatusOK {
 			continue
 		}
 		b, err := outlines[k], errs[k]

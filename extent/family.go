@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"sort"
 	"sync/atomic"
+
+	"areasweep/extent/vocab"
 )
 
 // MaxMembers is the largest family. Membership is held as row runs per
@@ -11,31 +13,12 @@ import (
 // scoring pass, which keeps one accumulator per member and worker.
 const MaxMembers = 1024
 
-// Kinds of family member.
+// Chain names of the built-in kinds.
 const (
-	KindBase         = "base"
-	KindRegionBuffer = "region_buffer"
-	KindPointBuffer  = "point_buffer"
-	KindHull         = "hull"
-	KindEcoregions   = "ecoregions"
-	KindWholeRaster  = "whole_raster"
-	KindUser         = "user"
-	chainRegion      = "region"
-	chainPoints      = "points"
-	chainHull        = "hull"
-	chainEcoregions  = "ecoregions"
-)
-
-// MemberStatus says whether a member is used: StatusOK, or StatusEmpty (no
-// valid cell) or StatusDuplicate (the cells of an earlier member). The
-// values are those of report.ExtentStatus, written to results.json.
-type MemberStatus string
-
-// The member statuses.
-const (
-	StatusOK        MemberStatus = "ok"
-	StatusEmpty     MemberStatus = "empty"
-	StatusDuplicate MemberStatus = "duplicate"
+	chainRegion     = "region"
+	chainPoints     = "points"
+	chainHull       = "hull"
+	chainEcoregions = "ecoregions"
 )
 
 // ErrTooManyMembers is returned when the settings ask for more than
@@ -77,12 +60,12 @@ type Spec struct {
 // Member is one extent of the family.
 type Member struct {
 	ID     string
-	Kind   string
+	Kind   string // a vocab.Kind
 	Params string
 	// Chain names the nested chain the member belongs to, if any; members of
 	// a chain are listed in Family.Chains from smallest to largest.
 	Chain       string
-	Status      MemberStatus
+	Status      vocab.Status
 	DuplicateOf string
 	Cells       int64
 	AreaKm2     float64
@@ -97,7 +80,7 @@ type Member struct {
 // Family is the set of extents on the grid. Each member's cells are held
 // as runs of columns per row (see Runs and Has), so memory follows the
 // members' boundaries rather than the number of cells. Only valid cells,
-// and only members with Status "ok", have cells.
+// and only members with Status vocab.StatusOK, have cells.
 type Family struct {
 	Grid     *Grid
 	Members  []Member
@@ -196,7 +179,7 @@ func (f *Family) Groups() [][]int {
 	for _, name := range f.ChainNames() {
 		var seq []int
 		for _, k := range f.Chains[name] {
-			if used[k] || f.Members[k].Status != StatusOK {
+			if used[k] || f.Members[k].Status != vocab.StatusOK {
 				continue
 			}
 			if len(seq) > 0 && !f.nested(seq[len(seq)-1], k) {
@@ -211,7 +194,7 @@ func (f *Family) Groups() [][]int {
 		}
 	}
 	for k, m := range f.Members {
-		if !used[k] && m.Status == StatusOK {
+		if !used[k] && m.Status == vocab.StatusOK {
 			out = append(out, []int{k})
 		}
 	}

@@ -7,6 +7,8 @@ import (
 	"sort"
 	"sync"
 	"sync/atomic"
+
+	"areasweep/extent/vocab"
 )
 
 // Clip restricts the family to the valid cells and measures it again:
@@ -98,17 +100,17 @@ func (b *builder) finish(trainCells, testCells []int) {
 	}
 	for k := range f.Members {
 		m := &f.Members[k]
-		if m.Status != StatusOK {
+		if m.Status != vocab.StatusOK {
 			continue
 		}
 		if m.Cells == 0 {
-			m.Status = StatusEmpty
+			m.Status = vocab.StatusEmpty
 			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell; not scored", m.ID))
 			continue
 		}
 		for j := 0; j < k; j++ {
-			if f.Members[j].Status == StatusOK && cells[j] == cells[k] && b.sameCells(j, k) {
-				m.Status = StatusDuplicate
+			if f.Members[j].Status == vocab.StatusOK && cells[j] == cells[k] && b.sameCells(j, k) {
+				m.Status = vocab.StatusDuplicate
 				m.DuplicateOf = f.Members[j].ID
 				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s has exactly the cells of %s; scored once, under %s", m.ID, f.Members[j].ID, f.Members[j].ID))
 				break
@@ -117,7 +119,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 	}
 	// Members that are not ok hold no cell.
 	for k := range f.Members {
-		if f.Members[k].Status != StatusOK {
+		if f.Members[k].Status != vocab.StatusOK {
 			f.cells[k] = cellRuns{rows: make([]rowRuns, g.Height)}
 		}
 	}
@@ -148,7 +150,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 	for _, name := range names {
 		var kept []int
 		for _, k := range f.Chains[name] {
-			if f.Members[k].Status == StatusOK {
+			if f.Members[k].Status == vocab.StatusOK {
 				kept = append(kept, k)
 			}
 		}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"areasweep/extent/vocab"
 )
 
 // truncation checks every model for a large floor and straight ROC tails.
@@ -115,12 +117,12 @@ func (a *analysis) independence() Independence {
 	var latN int
 	anyNonZero := false
 	for _, p := range a.r.Points {
-		if p.Status != PointScored {
+		if p.Status != vocab.PointScored {
 			continue
 		}
 		latSum += p.Lat
 		latN++
-		if p.Role != "test" {
+		if p.Role != string(vocab.RoleTest) {
 			continue
 		}
 		d = append(d, p.NearestTrainKm)
@@ -169,7 +171,7 @@ func (a *analysis) independence() Independence {
 func (a *analysis) omitted() []OmittedPoints {
 	nTest := 0
 	for _, p := range a.r.Points {
-		if p.Role == "test" && p.Status == PointScored {
+		if p.Role == string(vocab.RoleTest) && p.Status == vocab.PointScored {
 			nTest++
 		}
 	}

@@ -21,6 +21,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/extent/vocab"
 )
 
 // parseTickLabel reads a tick label back as a number: "0.25", "−0.5"
@@ -489,7 +491,7 @@ func TestMapPanels(t *testing.T) {
 	r := analyzedSample(t)
 	chains := map[string]bool{}
 	for _, e := range r.Extents {
-		if e.Status == "ok" && e.Chain != "" {
+		if e.Status == vocab.StatusOK && e.Chain != "" {
 			chains[e.Chain] = true
 		}
 	}

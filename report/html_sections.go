@@ -1,10 +1,11 @@
 package report
 
 import (
-	"areasweep/metrics"
 	"fmt"
 	"strconv"
 	"strings"
+
+	"areasweep/metrics"
 )
 
 // analysisView is the page's Analysis section. Optional parts are nil

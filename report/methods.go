@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // joinList joins items as "a, b and c".
@@ -48,7 +50,7 @@ func methodsText(r *Results) string {
 	lo, hi := 0.0, 0.0
 	first := true
 	for _, e := range r.Extents {
-		if e.Status != ExtentOK {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		fam = append(fam, fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2)))

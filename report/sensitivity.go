@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -119,7 +120,7 @@ type MetricInfo struct {
 // SkippedExtent is an extent left out of the analysis.
 type SkippedExtent struct {
 	ID          string       `json:"id"`
-	Status      ExtentStatus `json:"status"`
+	Status      vocab.Status `json:"status"`
 	DuplicateOf string       `json:"duplicate_of,omitempty"`
 	Reason      string       `json:"reason"`
 }
@@ -533,7 +534,7 @@ func newAnalysis(r *Results) *analysis {
 	allExt := map[string]bool{}
 	for i, e := range r.Extents {
 		allExt[e.ID] = true
-		if e.Status == ExtentOK {
+		if e.Status == vocab.StatusOK {
 			a.extIndex[e.ID] = i
 			a.extents = append(a.extents, e)
 		}
@@ -580,11 +581,11 @@ func (a *analysis) extentUse() ([]string, []SkippedExtent, []UnscoredScore) {
 	uns := []UnscoredScore{}
 	for _, e := range a.r.Extents {
 		switch e.Status {
-		case ExtentOK:
-		case ExtentEmpty:
+		case vocab.StatusOK:
+		case vocab.StatusEmpty:
 			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "the extent has no valid cells"})
 			continue
-		case ExtentDuplicate:
+		case vocab.StatusDuplicate:
 			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, DuplicateOf: e.DuplicateOf, Reason: "same cells as " + e.DuplicateOf})
 			continue
 		default:

@@ -1,10 +1,12 @@
 package report
 
 import (
-	"areasweep/metrics"
 	"encoding/json"
 	"fmt"
 	"math"
+
+	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // teachCell is one model x extent entry of the embedded data.
@@ -58,7 +60,7 @@ func teachData(r *Results) ([]byte, error) {
 	}
 	for _, e := range rocExtents(r) {
 		pl.Extents = append(pl.Extents, teachExtent{ID: e.ID, Kind: e.Kind, Params: e.Params, AreaKm2: e.AreaKm2, Area: fmtArea(e.AreaKm2)})
-		if e.ID == "base" {
+		if e.ID == vocab.BaseID {
 			pl.Default = e.ID
 		}
 	}
