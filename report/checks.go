@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // truncation checks every model for a large floor and straight ROC tails.
@@ -138,7 +139,7 @@ func (a *analysis) independence() Independence {
 	ind.Defined = true
 	sort.Float64s(d)
 	ind.Min, ind.Max = d[0], d[len(d)-1]
-	ind.Q1, ind.Median, ind.Q3 = quantile7(d, 0.25), quantile7(d, 0.5), quantile7(d, 0.75)
+	ind.Q1, ind.Median, ind.Q3 = metrics.QuantileSorted(d, 0.25), metrics.QuantileSorted(d, 0.5), metrics.QuantileSorted(d, 0.75)
 	g := a.r.Grid
 	how := ""
 	if g.Geographic {

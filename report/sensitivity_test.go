@@ -465,17 +465,13 @@ func TestStatsWorkedExamples(t *testing.T) {
 			}
 		})
 	}
-	r, tie := averageRanks([]float64{0.9, 0.7, 0.9, 0.5}, true)
+	r, tie := ranksBestFirst([]float64{0.9, 0.7, 0.9, 0.5}, true)
 	if !reflect.DeepEqual(r, []float64{1.5, 3, 1.5, 4}) || tie != 6 {
-		t.Errorf("averageRanks = %v tie %v, want [1.5 3 1.5 4] tie 6 (hand computation)", r, tie)
+		t.Errorf("ranksBestFirst = %v tie %v, want [1.5 3 1.5 4] tie 6 (hand computation)", r, tie)
 	}
-	// Hyndman & Fan type 7 on 1..5: Q(0.25) = 2, Q(0.1) = 1.4 (hand computation).
-	xs := []float64{1, 2, 3, 4, 5}
-	if q := quantile7(xs, 0.25); q != 2 {
-		t.Errorf("Q(0.25) = %v, want 2", q)
-	}
-	if q := quantile7(xs, 0.1); math.Abs(q-1.4) > 1e-12 {
-		t.Errorf("Q(0.1) = %v, want 1.4", q)
+	r, tie = ranksBestFirst([]float64{0.9, 0.7, 0.9, 0.5}, false)
+	if !reflect.DeepEqual(r, []float64{3.5, 2, 3.5, 1}) || tie != 6 {
+		t.Errorf("ranksBestFirst (lower better) = %v tie %v, want [3.5 2 3.5 1] tie 6 (hand computation)", r, tie)
 	}
 	// OLS through (0,1), (1,3), (2,5): slope 2 exactly, r^2 = 1.
 	f, ok := ols([]float64{0, 1, 2}, []float64{1, 3, 5})

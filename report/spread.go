@@ -167,9 +167,12 @@ func (a *analysis) spread(m MetricInfo, model string) Spread {
 			}
 		}
 		sp.Range = sp.Max - sp.Min
-		sp.Mean = meanOf(sp.Values)
+		sp.Mean = metrics.Mean(sp.Values)
 	}
-	sp.SD, sp.SDDefined = sampleSD(sp.Values)
+	if len(sp.Values) >= 2 {
+		_, sp.SD = metrics.MeanSD(sp.Values)
+		sp.SDDefined = true
+	}
 	return sp
 }
 
