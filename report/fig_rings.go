@@ -22,9 +22,6 @@ type chainWaterfall struct {
 	cs     []*ChainSummary
 }
 
-// subRow is the height of one model's line within a row, in data units.
-const subRow = 1.0
-
 // rows returns the number of rows: start, one per step, end.
 func (w chainWaterfall) rows() int { return len(w.steps) + 2 }
 
