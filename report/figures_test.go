@@ -446,7 +446,7 @@ func TestPartialROCPoints(t *testing.T) {
 	r := analyzedSample(t)
 	n := 0
 	for _, m := range r.Sensitivity.Metrics {
-		if m.Kind != "partial_roc" {
+		if m.Kind != MetricPartialROC {
 			continue
 		}
 		for _, model := range r.Sensitivity.ModelNames {

@@ -102,9 +102,13 @@ type notedTable struct {
 }
 
 // badge is a verdict with its badge style and sentence.
-type badge struct{ Class, Verdict, Sentence string }
+type badge struct {
+	Class    string
+	Verdict  Judgement
+	Sentence string
+}
 
-func verdictBadge(verdict, sentence string) badge {
+func verdictBadge(verdict Judgement, sentence string) badge {
 	return badge{Class: verdictClass(verdict), Verdict: verdict, Sentence: sentence}
 }
 
@@ -198,11 +202,11 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 // signed numbers such as "+0.042" then read as typed in the page source.
 func plainPlus(b []byte) []byte { return bytes.ReplaceAll(b, []byte("&#43;"), []byte("+")) }
 
-func verdictClass(v string) string {
+func verdictClass(v Judgement) string {
 	switch v {
-	case "robust":
+	case JudgementRobust:
 		return "robust"
-	case "extent-sensitive":
+	case JudgementSensitive:
 		return "sensitive"
 	}
 	return "undetermined"

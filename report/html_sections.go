@@ -202,11 +202,11 @@ func chainsSection(s *Sensitivity) *chainsView {
 		v.Sentences = append(v.Sentences, c.Sentence)
 		for _, st := range c.Steps {
 			what := "ring " + st.Outer + " − " + st.Inner
-			if st.Kind == "test_points" {
+			if st.Kind == StepTestPoints {
 				what = "test points entering with " + st.Outer
 			}
 			row := []cell{tc(c.Chain), tc(c.Model), tc(what)}
-			if st.Kind == "ring" {
+			if st.Kind == StepRing {
 				row = append(row, areaCell(st.RingAreaKm2), defNum(st.AUCRing, st.AUCRingDefined, 3))
 			} else {
 				row = append(row, dash, dash)

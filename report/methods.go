@@ -274,9 +274,9 @@ func reviewerText(r *Results) string {
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
 		switch v.Verdict {
-		case "robust":
+		case JudgementRobust:
 			robust = append(robust, v.Label)
-		case "extent-sensitive":
+		case JudgementSensitive:
 			sensitive = append(sensitive, v.Label)
 		default:
 			undetermined = append(undetermined, v.Label)

@@ -32,7 +32,7 @@ func goldenPages(t *testing.T) map[string]goldenPage {
 	r.Grid.CRS = bad
 	r.Inputs = append(r.Inputs, Input{Role: bad, Path: bad, SHA256: bad})
 	v := r.Sensitivity.Verdicts[0]
-	v.Verdict, v.Sentence = bad, bad
+	v.Verdict, v.Sentence = Judgement(bad), bad
 	r.Sensitivity.Verdicts = append(r.Sensitivity.Verdicts, v)
 
 	// Every optional part absent.

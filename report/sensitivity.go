@@ -86,16 +86,48 @@ type Sensitivity struct {
 	Warnings []string `json:"warnings"`
 }
 
+// MetricKind is the kind of an analysed metric.
+type MetricKind string
+
+// The metric kinds.
+const (
+	MetricAUC           MetricKind = "auc"
+	MetricAUCUnweighted MetricKind = "auc_unweighted"
+	MetricPartialROC    MetricKind = "partial_roc"
+	MetricOmission      MetricKind = "omission"
+	MetricAreaFraction  MetricKind = "area_fraction"
+	MetricBoyce         MetricKind = "boyce"
+)
+
+// Judgement is the equivalence verdict on a metric (see ModelVerdict).
+type Judgement string
+
+// The verdicts.
+const (
+	JudgementRobust       Judgement = "robust"
+	JudgementSensitive    Judgement = "extent-sensitive"
+	JudgementUndetermined Judgement = "undetermined"
+)
+
+// StepKind says what a ChainStep adds to the inner extent: StepRing, the
+// cells of a ring (and the test points in it), or StepTestPoints, test
+// points that first fall inside with the outer extent.
+type StepKind string
+
+// The chain step kinds.
+const (
+	StepRing       StepKind = "ring"
+	StepTestPoints StepKind = "test_points"
+)
+
 // MetricInfo names one analysed metric.
 type MetricInfo struct {
 	// Key is a stable identifier: "auc", "auc_unweighted",
 	// "partial_roc_e0.05", "omission_minimum_training_presence",
 	// "omission_fixed_0.5", "area_fraction_mtp", "boyce".
-	Key   string `json:"key"`
-	Label string `json:"label"`
-	// Kind is "auc", "auc_unweighted", "partial_roc", "omission",
-	// "area_fraction" or "boyce".
-	Kind string `json:"kind"`
+	Key   string     `json:"key"`
+	Label string     `json:"label"`
+	Kind  MetricKind `json:"kind"`
 	// E is the allowable omission of a partial ROC metric.
 	E float64 `json:"e,omitempty"`
 	// Threshold and ThresholdValue identify an omission metric (the value
@@ -209,13 +241,13 @@ type ExtentDifference struct {
 //	                 the largest difference and its interval), or no
 //	                 difference could be formed
 type ModelVerdict struct {
-	Metric    string  `json:"metric"`
-	Label     string  `json:"label"`
-	Model     string  `json:"model"`
-	Tolerance float64 `json:"tolerance"`
-	Verdict   string  `json:"verdict"`
-	Base      string  `json:"base_extent"`
-	BaseValue float64 `json:"base_value"`
+	Metric    string    `json:"metric"`
+	Label     string    `json:"label"`
+	Model     string    `json:"model"`
+	Tolerance float64   `json:"tolerance"`
+	Verdict   Judgement `json:"verdict"`
+	Base      string    `json:"base_extent"`
+	BaseValue float64   `json:"base_value"`
 	// BaseDefined is false when the metric is undefined on the base extent.
 	BaseDefined bool               `json:"base_defined"`
 	Diffs       []ExtentDifference `json:"differences"`
@@ -230,10 +262,10 @@ type ModelVerdict struct {
 // Verdict sums up the ModelVerdicts of one metric: extent-sensitive when
 // any model's is, robust when every model's is, undetermined otherwise.
 type Verdict struct {
-	Metric    string  `json:"metric"`
-	Label     string  `json:"label"`
-	Tolerance float64 `json:"tolerance"`
-	Verdict   string  `json:"verdict"`
+	Metric    string    `json:"metric"`
+	Label     string    `json:"label"`
+	Tolerance float64   `json:"tolerance"`
+	Verdict   Judgement `json:"verdict"`
 	// Sensitive, Robust and Undetermined list the models by verdict.
 	Sensitive    []string `json:"sensitive_models"`
 	Robust       []string `json:"robust_models"`
@@ -354,19 +386,18 @@ type ChainSummary struct {
 
 // ChainStep is one step of a ChainSummary.
 type ChainStep struct {
-	// Kind is "ring" or "test_points".
-	Kind           string  `json:"kind"`
-	Inner          string  `json:"inner"`
-	Outer          string  `json:"outer"`
-	RingAreaKm2    float64 `json:"ring_area_km2"`
-	RingCells      int64   `json:"ring_cells"`
-	AUCInner       float64 `json:"auc_inner"`
-	AUCRing        float64 `json:"auc_ring"`
-	AUCRingDefined bool    `json:"auc_ring_defined"`
-	AUCOuter       float64 `json:"auc_outer"`
-	Change         float64 `json:"change"`
-	Share          float64 `json:"share"`
-	MixResidual    float64 `json:"mix_residual"`
+	Kind           StepKind `json:"kind"`
+	Inner          string   `json:"inner"`
+	Outer          string   `json:"outer"`
+	RingAreaKm2    float64  `json:"ring_area_km2"`
+	RingCells      int64    `json:"ring_cells"`
+	AUCInner       float64  `json:"auc_inner"`
+	AUCRing        float64  `json:"auc_ring"`
+	AUCRingDefined bool     `json:"auc_ring_defined"`
+	AUCOuter       float64  `json:"auc_outer"`
+	Change         float64  `json:"change"`
+	Share          float64  `json:"share"`
+	MixResidual    float64  `json:"mix_residual"`
 }
 
 // TruncationCheck flags a model whose predictions look truncated: a floor
