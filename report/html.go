@@ -52,6 +52,8 @@ var (
 	reportJS       = template.JS(pageAsset("report.js"))
 )
 
+// htmlEscape escapes the label inlineSVG writes into an SVG's attributes;
+// everything else on the page is escaped by html/template.
 func htmlEscape(s string) string { return html.EscapeString(s) }
 
 // cell is one table cell: its text and, for numbers, the sort value.
@@ -196,10 +198,12 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 
 // plainPlus writes back as '+' the "&#43;" that html/template uses for a
 // plus sign in text and attribute values (a defence against UTF-7
-// sniffing, moot here: the page declares utf-8 before any value). The
-// escaper writes that entity only for a '+' in a value, and a literal
-// "&#43;" in a value comes out as "&amp;#43;", so nothing else changes;
-// signed numbers such as "+0.042" then read as typed in the page source.
+// sniffing, moot here: the page declares utf-8 before any value). Nothing
+// else on the page holds that entity: a literal "&#43;" in a value comes
+// out as "&amp;#43;", the inlined SVG is escaped by html.EscapeString
+// (gonum's vgsvg) and the JSON by encoding/json (& as \u0026). Signed
+// numbers such as "+0.042" so read as typed in the page source, as they
+// did before the page moved to html/template.
 func plainPlus(b []byte) []byte { return bytes.ReplaceAll(b, []byte("&#43;"), []byte("+")) }
 
 func verdictClass(v Judgement) string {
