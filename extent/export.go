@@ -5,6 +5,8 @@ import (
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"areasweep/extent/vocab"
 )
 
 // LayerName is the name of the GeoPackage layer that holds the family.
@@ -38,7 +40,7 @@ func (f *Family) WriteGeoPackage(path string) error {
 	errs := make([]error, len(f.Members))
 	parallelRows(len(f.Members), func() func(k int) {
 		return func(k int) {
-			if f.Members[k].Status != StatusOK {
+			if f.Members[k].Status != vocab.StatusOK {
 				return
 			}
 			mp, err := f.Outline(k)
@@ -52,7 +54,7 @@ func (f *Family) WriteGeoPackage(path string) error {
 		{"status", godal.FTString}, {"cells", godal.FTInt64}, {"area_km2", godal.FTReal}}
 	var feats []Feature
 	for k, m := range f.Members {
-		if m.Status != StatusOK {
+		if m.Status != vocab.StatusOK {
 			continue
 		}
 		if errs[k] != nil {

@@ -138,11 +138,11 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	}
 	sr, err := godal.NewSpatialRef(crs)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoCRS, err)
 	}
 	wkt, err := sr.WKT()
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoCRS, err)
 	}
 	wgs, err := godal.NewSpatialRefFromEPSG(4326)
 	if err != nil {

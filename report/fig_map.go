@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -91,7 +92,7 @@ func mapGroups(r *Results) []mapGroup {
 	var order []string
 	byChain := map[string][]int{}
 	for i, e := range r.Extents {
-		if e.Status != ExtentOK {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		if _, ok := byChain[e.Chain]; !ok {
@@ -157,15 +158,15 @@ func mapPoints(r *Results, model string) mapMarks {
 	p10 := omittedAt(r, model, metrics.ThresholdP10)
 	var tr, te, om1, om10 plotter.XYs
 	for _, pt := range r.Points {
-		if pt.Status != PointScored || pt.Row < 0 || pt.Col < 0 {
+		if pt.Status != vocab.PointScored || pt.Row < 0 || pt.Col < 0 {
 			continue
 		}
 		x, y := pointXY(r.Grid, pt)
 		xy := plotter.XY{X: x, Y: y}
-		switch pt.Role {
-		case "train":
+		switch vocab.Role(pt.Role) {
+		case vocab.RoleTrain:
 			tr = append(tr, xy)
-		case "test":
+		case vocab.RoleTest:
 			te = append(te, xy)
 			if mtp[pt.ID] {
 				om1 = append(om1, xy)
