@@ -3,17 +3,37 @@ package main
 import (
 	"bytes"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 )
 
-// shardArgs are the small study's run arguments with a raster null, so
-// that every kind of pass (models, a raster null, the distance-only null)
-// is split.
-func (s *smallStudy) shardArgs(out string, extra ...string) []string {
-	return s.args(out, append([]string{"--null", "flat=" + s.model2}, extra...)...)
+// shardArgs are the small study's run arguments with a raster null whose
+// no-data cells differ from the first model's (holes where the model has
+// data, data in the model's no-data corner), so that every kind of pass
+// (models, a raster null, the distance-only null) is split and the clip to
+// the first model's valid cells matters for a later pass.
+func (s *smallStudy) shardArgs(t *testing.T, out string, extra ...string) []string {
+	t.Helper()
+	holes := filepath.Join(s.dir, "holes.tif")
+	if _, err := os.Stat(holes); err != nil {
+		v := make([]float64, len(s.vals))
+		for i := range v {
+			r, c := i/s.w, i%s.w
+			switch {
+			case c >= 44 && r >= 28:
+				v[i] = float64(float32(0.01 * float64(c-r)))
+			case r >= 9 && r < 14 && c >= 20 && c < 31:
+				v[i] = math.NaN()
+			default:
+				v[i] = float64(float32(1 - s.vals[i]))
+			}
+		}
+		writeRaster(t, holes, s.w, s.h, s.gt, v, true)
+	}
+	return s.args(out, append([]string{"--null", "holes=" + holes}, extra...)...)
 }
 
 // runShards runs shards 1..n of the small study, shard i into dir/shard-i
@@ -23,7 +43,7 @@ func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) 
 	var outs []string
 	for i := 1; i <= n; i++ {
 		out := filepath.Join(dir, fmt.Sprintf("shard-%d", i))
-		args := s.shardArgs(out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
+		args := s.shardArgs(t, out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
 		if _, se, code := runBin(t, args...); code != 0 {
 			t.Fatalf("shard %d/%d: exit %d: %s", i, n, code, se)
 		}
@@ -43,7 +63,7 @@ func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) 
 func TestShardsMergeToSingleRun(t *testing.T) {
 	s := newSmallStudy(t)
 	single := filepath.Join(s.dir, "single")
-	if _, se, code := runBin(t, s.shardArgs(single)...); code != 0 {
+	if _, se, code := runBin(t, s.shardArgs(t, single)...); code != 0 {
 		t.Fatalf("single run: exit %d: %s", code, se)
 	}
 	same := []string{"results.json", "scores.csv", "report.html", "methods.md", "extents.gpkg", "extents.tif", "omitted_points.gpkg"}
