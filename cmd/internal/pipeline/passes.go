@@ -231,6 +231,9 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 	if m.NullKind == report.NullDistance {
 		how = "computed cell by cell (no file read)"
 	}
+	if s.rows != nil {
+		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
+	}
 	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, p.src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
 	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: pv}, nil
 }
