@@ -175,3 +175,45 @@ func TestMergeRefuses(t *testing.T) {
 		}
 	})
 }
+
+// TestShardsShareAFolder: shards run one after another into one folder
+// need --force from the second on, and --force then replaces only the
+// shard's own two files: another shard's files and a whole run's outputs
+// in the folder stay as they were. merge takes the folder.
+func TestShardsShareAFolder(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := filepath.Join(s.dir, "shared")
+	shard := func(i int, extra ...string) (string, int) {
+		_, se, code := runBin(t, s.shardArgs(t, dir, append([]string{"--shard", fmt.Sprintf("%d/2", i)}, extra...)...)...)
+		return se, code
+	}
+	if se, code := shard(1); code != 0 {
+		t.Fatalf("shard 1: exit %d: %s", code, se)
+	}
+	if se, code := shard(2); code != 2 || !strings.Contains(se, "--force") {
+		t.Fatalf("shard 2 into a non-empty folder without --force: exit %d: %s", code, se)
+	}
+	if se, code := shard(2, "--force"); code != 0 {
+		t.Fatalf("shard 2 --force: exit %d: %s", code, se)
+	}
+	keep := filepath.Join(dir, "results.json")
+	os.WriteFile(keep, []byte("a whole run's results\n"), 0o644)
+	other, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf"))
+	if se, code := shard(1, "--force"); code != 0 {
+		t.Fatalf("shard 1 again --force: exit %d: %s", code, se)
+	}
+	if b, err := os.ReadFile(keep); err != nil || string(b) != "a whole run's results\n" {
+		t.Errorf("results.json in the shards' folder was replaced or removed by a shard (%v)", err)
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf")); len(other) == 0 || !bytes.Equal(b, other) {
+		t.Error("shard 1 --force changed shard 2's partial file")
+	}
+	for _, f := range []string{"shard-1-of-2.aspf", "shard-1-of-2.log", "shard-2-of-2.log"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("%s missing: %v", f, err)
+		}
+	}
+	if _, se, code := runBin(t, "merge", "--quiet", "--out", filepath.Join(s.dir, "merged"), dir); code != 0 {
+		t.Fatalf("merge of the folder: exit %d: %s", code, se)
+	}
+}

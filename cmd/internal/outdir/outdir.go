@@ -14,7 +14,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -49,10 +48,6 @@ import (
 var outputNames = []string{"results.json", "scores.csv", "extents.gpkg", "extents.csv", "extents.tif",
 	"omitted_points.gpkg", "report.html", "methods.md", "figures", "run.log"}
 
-// shardOutput matches the files a shard writes (shard-I-of-N.aspf and its
-// .log): --force replaces the ones this run wrote, never another shard's.
-var shardOutput = regexp.MustCompile(`^shard-[0-9]+-of-[0-9]+\.(aspf|log)$`)
-
 const (
 	lockSuffix     = ".areasweep-lock"
 	stagePrefix    = ".areasweep-partial-"
@@ -68,6 +63,10 @@ type Dir struct {
 	Stage string // the staging folder the results are written into
 	// Demo marks the demo's run: inputs/ is also an output entry.
 	Demo bool
+	// Shard marks a shard's run (run --shard): it writes only its partial
+	// file and log, and --force replaces only those, never another
+	// shard's files or a whole run's outputs in the same folder.
+	Shard bool
 	// Cleaned is the number of staging folders of dead runs removed.
 	Cleaned int
 
@@ -446,9 +445,10 @@ func (d *Dir) moveEntries() error {
 	if d.Demo {
 		replace = append(append([]string{}, outputNames...), "inputs")
 	}
-	for n := range names {
-		if shardOutput.MatchString(n) {
-			replace = append(append([]string{}, replace...), n)
+	if d.Shard {
+		replace = nil
+		for _, e := range staged {
+			replace = append(replace, e.Name())
 		}
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)

@@ -136,6 +136,7 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 		return err
 	}
 	defer s.Close()
+	s.dir.Shard = true
 	blocks, rows := shardfile.Rows(i, n, s.grid.Height)
 	s.rows = &rows
 	s.logf("shard %d of %d: grid rows %d to %d of %d", i, n, rows.First, rows.End, s.grid.Height)
