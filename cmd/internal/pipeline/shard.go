@@ -139,7 +139,11 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 	s.dir.Shard = true
 	blocks, rows := shardfile.Rows(i, n, s.grid.Height)
 	s.rows = &rows
-	s.logf("shard %d of %d: grid rows %d to %d of %d", i, n, rows.First, rows.End, s.grid.Height)
+	if rows.End > rows.First {
+		s.logf("shard %d of %d: grid rows %d to %d (of %d rows)", i, n, rows.First, rows.End-1, s.grid.Height)
+	} else {
+		s.logf("shard %d of %d: no grid row (more shards than the grid's %d rows); the partial file holds empty sums", i, n, s.grid.Height)
+	}
 	sh := &shardfile.Shard{Header: s.shardHeader(i, n, blocks), Width: s.grid.Width, Height: s.grid.Height}
 	if sh.Run, err = json.Marshal(recordRun(s.o)); err != nil {
 		return fault.Internal(err)
