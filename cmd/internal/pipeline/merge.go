@@ -56,6 +56,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if err != nil {
 		return nil, err
 	}
+	readTime := time.Since(t0)
 	if first.Tool != mo.Version {
 		return nil, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", first.Source, first.Tool, mo.Version))
 	}
@@ -76,7 +77,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		return nil, err
 	}
 	defer s.Close()
-	s.logf("%d partial file(s) read, checked and added up in %.2f s", len(files), time.Since(t0).Seconds())
+	s.logf("%d partial file(s) read, checked and added up in %.2f s", len(files), readTime.Seconds())
 	if err := s.useShards(merged); err != nil {
 		return nil, err
 	}

@@ -187,7 +187,7 @@ func (s *Study) shardPass(ctx context.Context, k int, sh *shardfile.Shard) error
 		sh.Valid = shardfile.ValidRuns(sums.Valid, s.grid.Width, *s.rows)
 		sh.PreviewWidth, sh.PreviewHeight = sums.Preview.Width, sums.Preview.Height
 		sh.Preview = shardfile.PreviewCells(sums.Preview)
-		s.shardClip(sums.Valid)
+		s.timed("family clipped as far as the shard's rows tell", func() error { s.shardClip(sums.Valid); return nil })
 	}
 	lo, hi := p.Layout.HistRange()
 	sh.Passes = append(sh.Passes, shardfile.Pass{Name: p.Model.Name, Lo: lo, Hi: hi, Layout: p.Layout, Accs: sums.Accs, Stats: sums.Stats})
