@@ -153,7 +153,10 @@ func (s *Study) valueRange(name string, exact func() (lo, hi float64, ok bool, e
 	if r, known := s.ranges[name]; known {
 		return r[0], r[1], true, nil
 	}
-	return exact()
+	t0 := time.Now()
+	lo, hi, ok, err = exact()
+	s.logf("%s: value range found in %.2f s", name, time.Since(t0).Seconds())
+	return lo, hi, ok, err
 }
 
 // layout samples p's source at the points and sets p.Layout: its bins at
