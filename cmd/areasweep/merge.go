@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"path/filepath"
 
@@ -34,7 +35,12 @@ results.json and scores.csv are byte for byte those of a single run.`,
 		Example: `  areasweep run --study study.yaml --shard 1/2 --out shards/1
   areasweep run --study study.yaml --shard 2/2 --out shards/2
   areasweep merge --out results shards/1 shards/2`,
-		Args: cobra.MinimumNArgs(1),
+		Args: func(c *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return errors.New("no partial file given: name the shards' .aspf files or the folders holding them (see 'areasweep merge --help')")
+			}
+			return nil
+		},
 		RunE: func(c *cobra.Command, args []string) error {
 			opts.Files = args
 			if err := checkWorkers(opts.Workers); err != nil {
