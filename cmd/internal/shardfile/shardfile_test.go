@@ -291,3 +291,62 @@ func FuzzDecode(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkDecodeMerge measures what a merge does per partial file:
+// decode it (checksums, every accumulator) and add it to the sum, for
+// shards of 13 extents x 3 passes with layouts of 1,000 values and 4,096
+// histogram bins (the benchmark study's size); bytes/s is file bytes.
+func BenchmarkDecodeMerge(b *testing.B) {
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = float64(i) / 1000
+	}
+	l, err := metrics.NewLayout(vals, 0, 1, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	ids := make([]string, 13)
+	for k := range ids {
+		ids[k] = fmt.Sprint("e", k)
+	}
+	mk := func(i int) []byte {
+		blocks, _ := Rows(i, 4, 400)
+		s := &Shard{Header: metrics.ShardHeader{Tool: "bench", Settings: strings.Repeat("cd", 32), Shard: i, Shards: 4, TotalBlocks: 400, Blocks: blocks},
+			Run: []byte(`{}`), Width: 500, Height: 400, Members: ids, PreviewWidth: 1, PreviewHeight: 1}
+		rng := rand.New(rand.NewPCG(uint64(i), 3))
+		for p := range 3 {
+			ps := Pass{Name: fmt.Sprint("m", p), Hi: 1, Layout: l}
+			for range ids {
+				a := l.NewAccumulator()
+				for range 20000 {
+					a.Add(rng.Float64(), 1000)
+				}
+				ps.Accs = append(ps.Accs, a)
+			}
+			s.Passes = append(s.Passes, ps)
+		}
+		for range 100 {
+			s.Valid = append(s.Valid, []int32{0, 500})
+		}
+		data, err := Encode(s)
+		if err != nil {
+			b.Fatal(err)
+		}
+		return data
+	}
+	files := [][]byte{mk(1), mk(2), mk(3), mk(4)}
+	b.SetBytes(int64(len(files[0]) * len(files)))
+	b.ReportAllocs()
+	for b.Loop() {
+		m := &Merged{}
+		for _, f := range files {
+			s, err := Decode(f, "bench")
+			if err != nil {
+				b.Fatal(err)
+			}
+			if err := m.Add(s); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+}
