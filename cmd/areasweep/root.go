@@ -173,6 +173,7 @@ reports how much of each score comes from the extent rather than from the model.
 		newRunCmd(streams, nil),
 		newExtentsCmd(streams, nil),
 		newReportCmd(streams, nil),
+		newMergeCmd(streams, nil),
 		newDemoCmd(streams, nil),
 		newVersionCmd(streams),
 	)

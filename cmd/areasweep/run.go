@@ -27,6 +27,8 @@ import (
 type RunOptions struct {
 	IO    *IO
 	Study string
+	// Shard is --shard I/N (run only); N = 0 when not given.
+	Shard shardFlag
 	pipeline.Options
 }
 
@@ -62,6 +64,7 @@ keys are the flag names; flags given on the command line override the file.`,
 		RunE:    sweepE(&opts, runF),
 	}
 	bindRunFlags(cmd.Flags(), &opts)
+	cmd.Flags().Var(&opts.Shard, "shard", "score only shard `I/N` of the grid's rows and write its partial file shard-I-of-N.aspf into --out, for 'areasweep merge'")
 	return cmd
 }
 
@@ -83,6 +86,9 @@ func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command,
 // sweep runs the pipeline on o into d (the demo's output folder) or, with
 // d nil, into --out, and prints where the results are.
 func sweep(o *RunOptions, d *outdir.Dir) error {
+	if o.Shard.N > 0 {
+		return shardSweep(o)
+	}
 	log := &pipeline.Log{}
 	setRunLog(log)
 	defer setRunLog(nil)

@@ -64,6 +64,10 @@ type Dir struct {
 	Stage string // the staging folder the results are written into
 	// Demo marks the demo's run: inputs/ is also an output entry.
 	Demo bool
+	// Shard marks a shard's run (run --shard): it writes only its partial
+	// file and log, and --force replaces only those, never another
+	// shard's files or a whole run's outputs in the same folder.
+	Shard bool
 	// Cleaned is the number of staging folders of dead runs removed.
 	Cleaned int
 
@@ -436,6 +440,12 @@ func (d *Dir) moveEntries() error {
 	replace := outputNames
 	if d.Demo {
 		replace = append(append([]string{}, outputNames...), "inputs")
+	}
+	if d.Shard {
+		replace = nil
+		for _, e := range staged {
+			replace = append(replace, e.Name())
+		}
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {

@@ -229,6 +229,11 @@ type Stats struct {
 	Area int64
 }
 
+// Merge adds to s the statistics of a pass over other cells (another
+// shard's rows): the result is that of one pass over both, whatever the
+// order of merges.
+func (s *Stats) Merge(o Stats) { s.merge(o) }
+
 func (s *Stats) merge(o Stats) {
 	if o.Area == 0 {
 		return
@@ -309,7 +314,16 @@ type Options struct {
 	// Family.Has). It is called from the workers at once and must not keep
 	// the slices.
 	Rows func(row, c0 int, vals []float64, weights []int64)
+	// RowRange, when set, restricts the pass to the grid rows it covers
+	// (one shard's share of a run): blocks outside are not read, a block
+	// across an edge is read and scored for its rows inside only. The
+	// accumulators, Stats, Preview, Valid and Rows then cover those rows
+	// alone; rows of different ranges add up exactly to the whole pass.
+	RowRange *RowRange
 }
+
+// RowRange is the half-open range of grid rows First <= row < End.
+type RowRange struct{ First, End int }
 
 // plan is what a pass needs of a model: its size and block layout, a
 // Source for each worker, and how stored values become model values.
@@ -347,7 +361,17 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	}
 	n := len(fam.Members)
 	nx := (p.width + p.blockW - 1) / p.blockW
-	total := nx * ((p.height + p.blockH - 1) / p.blockH)
+	first, end := 0, nx*((p.height+p.blockH-1)/p.blockH)
+	rows := RowRange{0, p.height}
+	if rr := opt.RowRange; rr != nil {
+		// Blocks are numbered row-major, so the blocks meeting rows
+		// [First, End) are one range of indices.
+		rows = RowRange{max(rr.First, 0), min(rr.End, p.height)}
+		first, end = 0, 0
+		if rows.End > rows.First {
+			first, end = rows.First/p.blockH*nx, (rows.End+p.blockH-1)/p.blockH*nx
+		}
+	}
 	type partial struct {
 		accs  []*metrics.Accumulator
 		stats Stats
@@ -388,12 +412,16 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 			// side by side in memory and per-cell writes would share cache lines.
 			var st Stats
 			for !failed.Load() {
-				i := int(next.Add(1) - 1)
-				if i >= total {
+				i := first + int(next.Add(1)-1)
+				if i >= end {
 					break
 				}
 				x0, y0 := (i%nx)*p.blockW, (i/nx)*p.blockH
 				b := block{x0: x0, y0: y0, w: min(p.blockW, p.width-x0), h: min(p.blockH, p.height-y0)}
+				if b.y0 < rows.First || b.y0+b.h > rows.End {
+					b.y0 = max(b.y0, rows.First)
+					b.h = min(y0+b.h, rows.End) - b.y0
+				}
 				b.buf = ws.buf[:b.w*b.h]
 				if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
 					pt.err = err
@@ -412,7 +440,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	for range doneBlocks {
 		done++
 		if opt.Progress != nil {
-			opt.Progress(done, total)
+			opt.Progress(done, end-first)
 		}
 	}
 	for w := range parts {

@@ -56,7 +56,6 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	}
 	g := s.grid
 	field := nullmodel.New(ix, pass.CellCentres(g))
-	far := field.FarthestBound(g.Width, g.Height, farthestStep)
 	dn := &distanceNull{ix: ix}
 	fam := s.fam
 	// Each ok member's cells of the row, taken from its runs, go to its own
@@ -87,7 +86,10 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	// Boyce index (the null has no file layout). An exact range would cost
 	// a second distance pass; a GeoTIFF copy of the null spans its exact
 	// range instead, so only its Boyce index may differ.
-	if err := s.layout(p, -math.Max(far, 1), 0); err != nil {
+	lo, hi, _, _ := s.valueRange(report.DistanceNullName, func() (float64, float64, bool, error) {
+		return -math.Max(field.FarthestBound(g.Width, g.Height, farthestStep), 1), 0, true, nil
+	})
+	if err := s.layout(p, lo, hi); err != nil {
 		return nil, err
 	}
 	return p, nil

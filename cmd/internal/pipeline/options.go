@@ -7,6 +7,7 @@ import (
 
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/settings"
+	"areasweep/metrics"
 )
 
 // Options are the resolved settings of one run: the command fills them
@@ -27,6 +28,13 @@ type Options struct {
 	StudyFile string
 	// Version is the software version recorded in results.json.
 	Version string
+	// ExpectInputs, when set, are the inputs' checksums the run must find
+	// (role and SHA-256, in the order of results.json's inputs): a merge
+	// refuses inputs that changed since its shards ran.
+	ExpectInputs []metrics.InputChecksum
+	// MoreInputs are other files the run reads (a merge's partial files),
+	// kept away from --out like the inputs.
+	MoreInputs []string
 }
 
 // InputPaths lists every input file, for the check that --out holds none.

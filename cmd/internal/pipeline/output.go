@@ -196,6 +196,9 @@ func (s *Study) progress(what string, total int) *bar {
 
 func (b *bar) update(done, total int) {
 	if b.pb != nil {
+		if total != b.pb.GetMax() {
+			b.pb.ChangeMax(total) // a shard's pass covers fewer blocks
+		}
 		b.pb.Set(done)
 	}
 }

@@ -45,6 +45,9 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 	if err != nil {
 		return err
 	}
+	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
+	}
 	if sums.Valid != nil {
 		// The extents are final only once the first model has been read.
 		if err := s.timed("family clipped to the valid cells", func() error { return s.Clip(sums.Valid) }); err != nil {
@@ -131,7 +134,7 @@ func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 	}
 	// The fine histogram (Boyce) spans the exact value range, so that the
 	// same pixels give the same index whatever the file layout.
-	lo, hi, ok, err := r.ExactRange()
+	lo, hi, ok, err := s.valueRange(m.Name, r.ExactRange)
 	if err != nil {
 		r.Close()
 		return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
@@ -146,6 +149,18 @@ func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 		return nil, err
 	}
 	return p, nil
+}
+
+// valueRange returns the value range of the pass of model name: the one
+// known already (Study.ranges, a merge's), or exact() (a full read).
+func (s *Study) valueRange(name string, exact func() (lo, hi float64, ok bool, err error)) (lo, hi float64, ok bool, err error) {
+	if r, known := s.ranges[name]; known {
+		return r[0], r[1], true, nil
+	}
+	t0 := time.Now()
+	lo, hi, ok, err = exact()
+	s.logf("%s: value range found in %.2f s", name, time.Since(t0).Seconds())
+	return lo, hi, ok, err
 }
 
 // layout samples p's source at the points and sets p.Layout: its bins at
@@ -215,10 +230,10 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 	if m.NullKind == report.NullDistance {
 		how = "computed cell by cell (no file read)"
 	}
-	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, p.src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
-	if stats.Area > 0 && stats.Min == stats.Max {
-		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", m.Name, stats.Min))
+	if s.rows != nil {
+		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
 	}
+	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, p.src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
 	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: opt.Preview}, nil
 }
 
@@ -227,7 +242,7 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 // tally) and, while the family waits for its clip, a bitset for the valid
 // cells. A source of sums other than Stream that reads cells uses them.
 func (s *Study) PassOptions(p *Plan) pass.Options {
-	opt := pass.Options{Workers: s.o.Workers, Rows: p.rows}
+	opt := pass.Options{Workers: s.o.Workers, Rows: p.rows, RowRange: s.rows}
 	if p.Index == 0 {
 		opt.Preview = pass.NewPreview(s.grid, previewSide)
 	}

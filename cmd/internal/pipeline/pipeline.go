@@ -9,6 +9,7 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
 	"areasweep/metrics"
@@ -83,6 +84,12 @@ type Study struct {
 	rawDegrees bool
 	// sums gives a pass's sums (Stream unless SetSums replaced it).
 	sums SumsFunc
+	// rows, when set, restricts Stream to those grid rows (a shard's).
+	rows *pass.RowRange
+	// ranges, when set, gives the passes' value ranges by model name, so
+	// that Plan reads no raster in full (a merge takes them from the
+	// shards).
+	ranges map[string][2]float64
 }
 
 // Prepare checks the inputs, reads the grid and the points, opens the
@@ -106,6 +113,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		s.checkMemory,
 		func() error { return s.timed("occurrences read, placed and sampled", s.readPoints) },
 		func() error { return s.timed("input checksums (SHA-256)", s.checksums) },
+		s.checkExpectedInputs,
 		ctx.Err,
 	} {
 		if err := step(); err != nil {
@@ -115,7 +123,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	}
 	if s.dir == nil {
 		var err error
-		if s.dir, err = outdir.Open(o.Out, o.Force, append(o.InputPaths(), o.StudyFile)); err != nil {
+		if s.dir, err = outdir.Open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
 			return nil, err
 		}
 	}

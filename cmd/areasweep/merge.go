@@ -1,0 +1,74 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"path/filepath"
+
+	"github.com/spf13/cobra"
+
+	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
+)
+
+// MergeOptions merges the partial files of a run's shards.
+type MergeOptions struct {
+	IO      *IO
+	Files   []string
+	Out     string
+	Force   bool
+	Quiet   bool
+	Workers int
+}
+
+func newMergeCmd(streams *IO, runF func(*MergeOptions) error) *cobra.Command {
+	opts := &MergeOptions{IO: streams}
+	cmd := &cobra.Command{
+		Use:   "merge --out DIR SHARD...",
+		Short: "Combine the partial files of 'run --shard I/N' into the outputs of the whole run",
+		Long: `merge reads the partial files (shard-I-of-N.aspf) that 'run --shard I/N' wrote, given
+as files or as the folders holding them, checks that they are exactly the shards 1..N
+of one run (same areasweep version, input files, settings and seed; none missing or
+given twice), prepares that run again from the inputs and settings the shards
+recorded, adds up the shards' sums and writes the run's outputs into --out:
+results.json and scores.csv are byte for byte those of a single run.`,
+		Example: `  areasweep run --study study.yaml --shard 1/2 --out shards/1
+  areasweep run --study study.yaml --shard 2/2 --out shards/2
+  areasweep merge --out results shards/1 shards/2`,
+		Args: func(c *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return errors.New("no partial file given: name the shards' .aspf files or the folders holding them (see 'areasweep merge --help')")
+			}
+			return nil
+		},
+		RunE: func(c *cobra.Command, args []string) error {
+			opts.Files = args
+			if err := checkWorkers(opts.Workers); err != nil {
+				return err
+			}
+			if runF != nil {
+				return runF(opts)
+			}
+			return mergeRun(opts)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&opts.Out, "out", "areasweep-out", "output directory `DIR` (an existing non-empty one needs --force)")
+	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
+	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
+	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", settings.MaxWorkers))
+	return cmd
+}
+
+func mergeRun(o *MergeOptions) error {
+	log := &pipeline.Log{}
+	setRunLog(log)
+	defer setRunLog(nil)
+	mo := pipeline.MergeOptions{Files: o.Files, Out: o.Out, Force: o.Force, Quiet: o.Quiet, Workers: o.Workers, Version: version}
+	if _, err := pipeline.Merge(context.Background(), mo, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log}); err != nil {
+		return err
+	}
+	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
+	return nil
+}

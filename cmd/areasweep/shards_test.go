@@ -1,0 +1,219 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// shardArgs are the small study's run arguments with a raster null whose
+// no-data cells differ from the first model's (holes where the model has
+// data, data in the model's no-data corner), so that every kind of pass
+// (models, a raster null, the distance-only null) is split and the clip to
+// the first model's valid cells matters for a later pass.
+func (s *smallStudy) shardArgs(t *testing.T, out string, extra ...string) []string {
+	t.Helper()
+	holes := filepath.Join(s.dir, "holes.tif")
+	if _, err := os.Stat(holes); err != nil {
+		v := make([]float64, len(s.vals))
+		for i := range v {
+			r, c := i/s.w, i%s.w
+			switch {
+			case c >= 44 && r >= 28:
+				v[i] = float64(float32(0.01 * float64(c-r)))
+			case r >= 9 && r < 14 && c >= 20 && c < 31:
+				v[i] = math.NaN()
+			default:
+				v[i] = float64(float32(1 - s.vals[i]))
+			}
+		}
+		writeRaster(t, holes, s.w, s.h, s.gt, v, true)
+	}
+	return s.args(out, append([]string{"--null", "holes=" + holes}, extra...)...)
+}
+
+// runShards runs shards 1..n of the small study, shard i into dir/shard-i
+// with --workers 1 for odd i and 2 for even i, and returns the folders.
+func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) []string {
+	t.Helper()
+	var outs []string
+	for i := 1; i <= n; i++ {
+		out := filepath.Join(dir, fmt.Sprintf("shard-%d", i))
+		args := s.shardArgs(t, out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
+		if _, se, code := runBin(t, args...); code != 0 {
+			t.Fatalf("shard %d/%d: exit %d: %s", i, n, code, se)
+		}
+		if _, err := os.Stat(filepath.Join(out, fmt.Sprintf("shard-%d-of-%d.aspf", i, n))); err != nil {
+			t.Fatalf("shard %d/%d wrote no partial file: %v", i, n, err)
+		}
+		outs = append(outs, out)
+	}
+	return outs
+}
+
+// TestShardsMergeToSingleRun: the small study split into N = 1, 2, 3 and 7
+// shards of grid rows (7 shards of 32 rows cut inside the 16 x 16 raster
+// tiles and the null's blocks), each shard run with 1 or 2 workers,
+// merges into exactly the single run's results.json and scores.csv, and
+// the same report, figures, extents and omitted points.
+func TestShardsMergeToSingleRun(t *testing.T) {
+	s := newSmallStudy(t)
+	single := filepath.Join(s.dir, "single")
+	if _, se, code := runBin(t, s.shardArgs(t, single)...); code != 0 {
+		t.Fatalf("single run: exit %d: %s", code, se)
+	}
+	same := []string{"results.json", "scores.csv", "report.html", "methods.md", "extents.gpkg", "extents.tif", "omitted_points.gpkg"}
+	figs, _ := filepath.Glob(filepath.Join(single, "figures", "*"))
+	if len(figs) == 0 {
+		t.Fatal("the single run wrote no figure")
+	}
+	for _, f := range figs {
+		same = append(same, filepath.Join("figures", filepath.Base(f)))
+	}
+	for _, n := range []int{1, 2, 3, 7} {
+		dir := filepath.Join(s.dir, fmt.Sprintf("n%d", n))
+		outs := runShards(t, s, dir, n)
+		merged := filepath.Join(dir, "merged")
+		// Folders and a file, in a shuffled order.
+		args := []string{"merge", "--quiet", "--out", merged}
+		for i := len(outs) - 1; i >= 0; i-- {
+			if i == 0 {
+				args = append(args, filepath.Join(outs[i], fmt.Sprintf("shard-1-of-%d.aspf", n)))
+			} else {
+				args = append(args, outs[i])
+			}
+		}
+		if _, se, code := runBin(t, args...); code != 0 {
+			t.Fatalf("N=%d: merge: exit %d: %s", n, code, se)
+		}
+		for _, f := range same {
+			a, err1 := os.ReadFile(filepath.Join(single, f))
+			b, err2 := os.ReadFile(filepath.Join(merged, f))
+			if err1 != nil || err2 != nil {
+				t.Fatalf("N=%d: %s: %v %v", n, f, err1, err2)
+			}
+			if !bytes.Equal(a, b) {
+				t.Errorf("N=%d: %s of the merge differs from the single run's", n, f)
+			}
+		}
+	}
+}
+
+// TestMergeRefuses: a merge of a bad set of partial files exits 2, names
+// the file or files at fault and the reason, and writes nothing.
+func TestMergeRefuses(t *testing.T) {
+	s := newSmallStudy(t)
+	two := runShards(t, s, filepath.Join(s.dir, "two"), 2)
+	otherSeed := runShards(t, s, filepath.Join(s.dir, "seed"), 2, "--seed", "10")
+	// Shard 2 of a run whose occurrences differ by one line.
+	occ2 := filepath.Join(s.dir, "occ2.csv")
+	b, _ := os.ReadFile(s.occ)
+	os.WriteFile(occ2, append(bytes.Clone(b), []byte("13.3,43.3,test\n")...), 0o644)
+	other := *s
+	other.occ = occ2
+	otherInput := runShards(t, &other, filepath.Join(s.dir, "input"), 2)
+	file := func(dir string, i, n int) string { return filepath.Join(dir, fmt.Sprintf("shard-%d-of-%d.aspf", i, n)) }
+	dup := filepath.Join(s.dir, "dup")
+	os.MkdirAll(dup, 0o755)
+	data, _ := os.ReadFile(file(two[0], 1, 2))
+	os.WriteFile(filepath.Join(dup, "copy.aspf"), data, 0o644)
+	corrupt := filepath.Join(s.dir, "corrupt.aspf")
+	c := bytes.Clone(data)
+	c[len(c)/2] ^= 1
+	os.WriteFile(corrupt, c, 0o644)
+	cut := filepath.Join(s.dir, "cut.aspf")
+	os.WriteFile(cut, data[:len(data)/3], 0o644)
+	notShard := filepath.Join(s.dir, "results.aspf")
+	os.WriteFile(notShard, []byte(`{"schema_version": 1}`), 0o644)
+	cases := []struct {
+		name  string
+		files []string
+		want  []string
+	}{
+		{"mixed seeds", []string{two[0], otherSeed[1]}, []string{"seed (9 vs 10)", file(two[0], 1, 2), file(otherSeed[1], 2, 2)}},
+		{"changed input", []string{two[0], otherInput[1]}, []string{"occurrences", "checksum", file(otherInput[1], 2, 2)}},
+		{"missing shard", []string{two[1]}, []string{"shard(s) 1 of 2 not given", file(two[1], 2, 2)}},
+		{"duplicate shard", []string{two[0], two[1], dup}, []string{"both shard 1", "copy.aspf"}},
+		{"corrupt file", []string{corrupt, two[1]}, []string{corrupt, "checksum mismatch"}},
+		{"cut short", []string{two[0], cut}, []string{cut}},
+		{"not a partial file", []string{notShard}, []string{notShard, "ASPF"}},
+		{"empty folder", []string{t.TempDir()}, []string{"holds no partial file"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
+			_, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", out}, tc.files...)...)
+			if code != 2 {
+				t.Fatalf("exit %d, want 2: %s", code, se)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(se, w) {
+					t.Errorf("message lacks %q: %s", w, se)
+				}
+			}
+			if _, err := os.Stat(out); err == nil {
+				t.Errorf("%s was created", out)
+			}
+		})
+	}
+	// An input changed after the shards ran: the merge re-reads it and
+	// refuses, naming the file.
+	t.Run("input changed since", func(t *testing.T) {
+		os.WriteFile(s.occ, append(bytes.Clone(b), []byte("13.7,43.1,test\n")...), 0o644)
+		defer os.WriteFile(s.occ, b, 0o644)
+		out := filepath.Join(s.dir, "out-changed")
+		_, se, code := runBin(t, "merge", "--quiet", "--out", out, two[0], two[1])
+		if code != 2 || !strings.Contains(se, s.occ) || !strings.Contains(se, "changed") {
+			t.Fatalf("exit %d, want 2 naming %s: %s", code, s.occ, se)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%s was created", out)
+		}
+	})
+}
+
+// TestShardsShareAFolder: shards run one after another into one folder
+// need --force from the second on, and --force then replaces only the
+// shard's own two files: another shard's files and a whole run's outputs
+// in the folder stay as they were. merge takes the folder.
+func TestShardsShareAFolder(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := filepath.Join(s.dir, "shared")
+	shard := func(i int, extra ...string) (string, int) {
+		_, se, code := runBin(t, s.shardArgs(t, dir, append([]string{"--shard", fmt.Sprintf("%d/2", i)}, extra...)...)...)
+		return se, code
+	}
+	if se, code := shard(1); code != 0 {
+		t.Fatalf("shard 1: exit %d: %s", code, se)
+	}
+	if se, code := shard(2); code != 2 || !strings.Contains(se, "--force") {
+		t.Fatalf("shard 2 into a non-empty folder without --force: exit %d: %s", code, se)
+	}
+	if se, code := shard(2, "--force"); code != 0 {
+		t.Fatalf("shard 2 --force: exit %d: %s", code, se)
+	}
+	keep := filepath.Join(dir, "results.json")
+	os.WriteFile(keep, []byte("a whole run's results\n"), 0o644)
+	other, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf"))
+	if se, code := shard(1, "--force"); code != 0 {
+		t.Fatalf("shard 1 again --force: exit %d: %s", code, se)
+	}
+	if b, err := os.ReadFile(keep); err != nil || string(b) != "a whole run's results\n" {
+		t.Errorf("results.json in the shards' folder was replaced or removed by a shard (%v)", err)
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf")); len(other) == 0 || !bytes.Equal(b, other) {
+		t.Error("shard 1 --force changed shard 2's partial file")
+	}
+	for _, f := range []string{"shard-1-of-2.aspf", "shard-1-of-2.log", "shard-2-of-2.log"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("%s missing: %v", f, err)
+		}
+	}
+	if _, se, code := runBin(t, "merge", "--quiet", "--out", filepath.Join(s.dir, "merged"), dir); code != 0 {
+		t.Fatalf("merge of the folder: exit %d: %s", code, se)
+	}
+}

@@ -1,0 +1,132 @@
+package pass
+
+import (
+	"fmt"
+	"math"
+	"sync"
+	"testing"
+
+	"areasweep/extent"
+	"areasweep/metrics"
+)
+
+// scoredShare is what a pass over some rows yields, for comparison.
+type scoredShare struct {
+	accs  []*metrics.Accumulator
+	stats Stats
+	valid extent.Valid
+	pv    *Preview
+	rows  []int // cells seen by Options.Rows, per row
+}
+
+// scoreRows runs one pass over rows rr (nil: every row) of src.
+func scoreRows(t *testing.T, g *extent.Grid, fam *extent.Family, layout *metrics.Layout, workers int, rr *RowRange,
+	score func(*extent.Grid, *extent.Family, *metrics.Layout, Options) ([]*metrics.Accumulator, Stats, error)) scoredShare {
+	t.Helper()
+	sh := scoredShare{valid: extent.NewValid(g.Cells()), pv: NewPreview(g, 37), rows: make([]int, g.Height)}
+	var mu sync.Mutex
+	opt := Options{Workers: workers, Valid: sh.valid, Preview: sh.pv, RowRange: rr, Rows: func(row, c0 int, vals []float64, w []int64) {
+		mu.Lock()
+		sh.rows[row] += len(vals)
+		mu.Unlock()
+	}}
+	var err error
+	if sh.accs, sh.stats, err = score(g, fam, layout, opt); err != nil {
+		t.Fatal(err)
+	}
+	return sh
+}
+
+// TestRowRangesAddUp: passes over row ranges that split the grid (cut
+// inside raster blocks and inside the virtual's blocks) add up to the
+// whole pass exactly: every accumulator's encoding, the statistics, the
+// valid bits, the preview and the rows seen, for a raster (256 x 256
+// tiles) and the virtual null, with 1 and 2 workers. An empty range scores
+// nothing, and a range past the grid is cut to it.
+func TestRowRangesAddUp(t *testing.T) {
+	g, v, _, fam := nullSetup(t)
+	_, r := openTestRaster(t, 300, 200)
+	defer r.Close()
+	rasterLayout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nullLayout, err := metrics.NewLayout([]float64{-1e4, -5e4}, -4e5, 0, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sources := []struct {
+		name   string
+		layout *metrics.Layout
+		score  func(*extent.Grid, *extent.Family, *metrics.Layout, Options) ([]*metrics.Accumulator, Stats, error)
+	}{{"raster", rasterLayout, r.Score}, {"virtual", nullLayout, v.Score}}
+	cuts := [][]RowRange{
+		{{0, 37}, {37, 111}, {111, 200}},
+		{{150, 400}, {0, 1}, {1, 150}, {60, 60}},
+	}
+	for _, src := range sources {
+		whole := scoreRows(t, g, fam, src.layout, 2, nil, src.score)
+		for ci, ranges := range cuts {
+			for _, workers := range []int{1, 2} {
+				name := fmt.Sprintf("%s/cut%d/workers=%d", src.name, ci, workers)
+				var sum scoredShare
+				for i, rr := range ranges {
+					sh := scoreRows(t, g, fam, src.layout, workers, &rr, src.score)
+					for row, n := range sh.rows {
+						if n > 0 && (row < rr.First || row >= rr.End) {
+							t.Fatalf("%s: range %v: row %d seen outside the range", name, rr, row)
+						}
+					}
+					if i == 0 {
+						sum = sh
+						continue
+					}
+					for k := range sum.accs {
+						if err := sum.accs[k].Merge(sh.accs[k]); err != nil {
+							t.Fatal(err)
+						}
+					}
+					sum.stats.Merge(sh.stats)
+					for w := range sum.valid {
+						if sum.valid[w]&sh.valid[w] != 0 {
+							t.Fatalf("%s: a valid cell in two ranges (word %d)", name, w)
+						}
+						sum.valid[w] |= sh.valid[w]
+					}
+					for j, x := range sh.pv.Values {
+						if !math.IsNaN(x) {
+							if !math.IsNaN(sum.pv.Values[j]) {
+								t.Fatalf("%s: preview cell %d set by two ranges", name, j)
+							}
+							sum.pv.Values[j] = x
+						}
+					}
+					for row, n := range sh.rows {
+						sum.rows[row] += n
+					}
+				}
+				for k := range whole.accs {
+					if string(metrics.EncodeAccumulator(sum.accs[k])) != string(metrics.EncodeAccumulator(whole.accs[k])) {
+						t.Errorf("%s: member %d: merged accumulator differs from the whole pass", name, k)
+					}
+				}
+				if sum.stats != whole.stats {
+					t.Errorf("%s: stats %+v, whole pass %+v", name, sum.stats, whole.stats)
+				}
+				if fmt.Sprint(sum.valid) != fmt.Sprint(whole.valid) {
+					t.Errorf("%s: valid bits differ from the whole pass", name)
+				}
+				if fmt.Sprint(sum.pv.Values) != fmt.Sprint(whole.pv.Values) {
+					t.Errorf("%s: preview differs from the whole pass", name)
+				}
+				if fmt.Sprint(sum.rows) != fmt.Sprint(whole.rows) {
+					t.Errorf("%s: rows seen differ from the whole pass", name)
+				}
+			}
+		}
+	}
+	empty := scoreRows(t, g, fam, rasterLayout, 2, &RowRange{60, 60}, r.Score)
+	if empty.accs[0].Cells() != 0 || empty.stats.Area != 0 {
+		t.Errorf("empty range scored %d cells", empty.accs[0].Cells())
+	}
+}

@@ -1,0 +1,262 @@
+package pipeline
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/pass"
+	"areasweep/cmd/internal/settings"
+	"areasweep/cmd/internal/shardfile"
+	"areasweep/metrics"
+	"areasweep/report"
+)
+
+// MergeOptions are a merge's own settings; everything else comes from the
+// shards.
+type MergeOptions struct {
+	// Files are partial files, or folders whose *.aspf files are taken.
+	Files []string
+	// Out, Force, Quiet and Workers are as for Run.
+	Out     string
+	Force   bool
+	Quiet   bool
+	Workers int
+	// Version is this areasweep's version; shards of another are refused.
+	Version string
+}
+
+// Merge combines the partial files of every shard of one run into that
+// run's outputs in --out: results.json and scores.csv byte for byte those
+// of a single Run, and the same report, figures, extents.gpkg,
+// extents.tif and omitted_points.gpkg (only run.log differs: timings and
+// the merge's own lines).
+//
+// Before anything is written it reads every file (ShardError naming the
+// file for one that is not a partial file, damaged or cut short), checks
+// that they are exactly the shards 1..N of one run (metrics.CheckShardSet:
+// the same areasweep version, inputs, settings, seed and shard count, no
+// shard twice or missing), decodes and merges their sums, and prepares the
+// run from the recorded inputs and settings, refusing inputs whose SHA-256
+// changed since the shards ran. Then every pass takes its sums from the
+// shards instead of reading the model, and the run finishes as Run does.
+func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error) {
+	t0 := time.Now()
+	files, err := shardPaths(mo.Files)
+	if err != nil {
+		return nil, err
+	}
+	merged, first, err := readShards(files)
+	if err != nil {
+		return nil, err
+	}
+	readTime := time.Since(t0)
+	if first.Tool != mo.Version {
+		return nil, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", first.Source, first.Tool, mo.Version))
+	}
+	var rec recordedRun
+	dec := json.NewDecoder(strings.NewReader(string(merged.Run)))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&rec); err != nil {
+		return nil, fault.BadInput(fmt.Errorf("%s: the recorded run cannot be read (%v); run the shards again with this areasweep", first.Source, err))
+	}
+	if rec.settingsHash() != first.Settings {
+		return nil, fault.BadInput(fmt.Errorf("%s: the recorded settings do not match the header's settings hash; the file was altered: run its shard again", first.Source))
+	}
+	o := Options{Values: settings.Values{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers}, Version: mo.Version,
+		ExpectInputs: first.Inputs, MoreInputs: files}
+	rec.apply(&o)
+	s, err := Prepare(ctx, o, io, nil)
+	if err != nil {
+		return nil, err
+	}
+	defer s.Close()
+	s.logf("%d partial file(s) read, checked and added up in %.2f s", len(files), readTime.Seconds())
+	if err := s.useShards(merged); err != nil {
+		return nil, err
+	}
+	for i := range s.Passes() {
+		if err := s.Pass(ctx, i); err != nil {
+			return nil, err
+		}
+	}
+	return s.Finish(ctx)
+}
+
+// shardPaths expands folders into their *.aspf files (sorted) and checks
+// that every path exists.
+func shardPaths(args []string) ([]string, error) {
+	if len(args) == 0 {
+		return nil, fault.BadInput(errors.New("no partial file given: name the shards' .aspf files or the folders holding them"))
+	}
+	var files []string
+	for _, a := range args {
+		st, err := os.Stat(a)
+		if err != nil {
+			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", a))
+		}
+		if !st.IsDir() {
+			files = append(files, a)
+			continue
+		}
+		found, err := filepath.Glob(filepath.Join(globEscape(a), "*.aspf"))
+		if err != nil || len(found) == 0 {
+			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", a))
+		}
+		sort.Strings(found)
+		files = append(files, found...)
+	}
+	return files, nil
+}
+
+// globEscape escapes the glob metacharacters of a literal path.
+func globEscape(s string) string {
+	var b strings.Builder
+	for _, r := range s {
+		if strings.ContainsRune(`*?[\`, r) {
+			b.WriteByte('\\')
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// readShards reads the files twice: first every header, for
+// metrics.CheckShardSet, then each file's content, decoded and merged one
+// file at a time. It returns the merged content and the first header.
+func readShards(files []string) (*shardfile.Merged, metrics.ShardHeader, error) {
+	var headers []metrics.ShardHeader
+	read := func(f string) ([]byte, error) {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", f, err))
+		}
+		return data, nil
+	}
+	for _, f := range files {
+		data, err := read(f)
+		if err != nil {
+			return nil, metrics.ShardHeader{}, err
+		}
+		pf, err := metrics.DecodePartial(data, f)
+		if err != nil {
+			return nil, metrics.ShardHeader{}, fault.BadInput(err)
+		}
+		headers = append(headers, pf.Header)
+	}
+	if err := metrics.CheckShardSet(headers); err != nil {
+		if errors.Is(err, metrics.ErrShardMissing) {
+			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
+		}
+		return nil, metrics.ShardHeader{}, fault.BadInput(err)
+	}
+	// Shard 1's recorded run is the one used: shards may differ in paths
+	// (other folders or machines) but not in inputs or settings.
+	order := make([]int, len(files))
+	for i := range order {
+		order[i] = i
+	}
+	sort.Slice(order, func(a, b int) bool { return headers[order[a]].Shard < headers[order[b]].Shard })
+	m := &shardfile.Merged{}
+	for _, i := range order {
+		data, err := read(files[i])
+		if err != nil {
+			return nil, metrics.ShardHeader{}, err
+		}
+		sh, err := shardfile.Decode(data, files[i])
+		if err != nil {
+			return nil, metrics.ShardHeader{}, fault.BadInput(err)
+		}
+		if err := m.Add(sh); err != nil {
+			return nil, metrics.ShardHeader{}, fault.BadInput(err)
+		}
+	}
+	return m, headers[order[0]], nil
+}
+
+// useShards makes every pass of s take its sums from merged instead of
+// reading its model, after checking that the prepared run is the shards'
+// run: the same grid and extents; the value ranges come from the shards
+// too, so no raster is read in full.
+func (s *Study) useShards(merged *shardfile.Merged) error {
+	if merged.Width != s.grid.Width || merged.Height != s.grid.Height {
+		return fault.BadInput(fmt.Errorf("the shards were made on a %d x %d grid, the inputs give %d x %d", merged.Width, merged.Height, s.grid.Width, s.grid.Height))
+	}
+	if len(merged.Members) != len(s.fam.Members) {
+		return fault.Internal(fmt.Errorf("the shards hold %d extents, the inputs give %d", len(merged.Members), len(s.fam.Members)))
+	}
+	for k, m := range s.fam.Members {
+		if merged.Members[k] != m.ID {
+			return fault.Internal(fmt.Errorf("extent %d is %s in the shards, %s here", k+1, merged.Members[k], m.ID))
+		}
+	}
+	byName := map[string]*shardfile.Pass{}
+	s.ranges = map[string][2]float64{}
+	for i := range merged.Passes {
+		p := &merged.Passes[i]
+		byName[p.Name] = p
+		s.ranges[p.Name] = [2]float64{p.Lo, p.Hi}
+	}
+	s.SetSums(func(s *Study, ctx context.Context, p *Plan) (*Sums, error) {
+		mp := byName[p.Model.Name]
+		if mp == nil {
+			return nil, fault.Internal(fmt.Errorf("the shards hold no pass of %s", p.Model.Name))
+		}
+		if mp.Layout.Fingerprint() != p.Layout.Fingerprint() {
+			return nil, fault.Internal(fmt.Errorf("model %s: the layout made from the inputs differs from the shards'", p.Model.Name))
+		}
+		sums := &Sums{Stats: mp.Stats}
+		for _, a := range mp.Accs {
+			b, err := shardfile.Rebase(a, p.Layout)
+			if err != nil {
+				return nil, fault.Internal(fmt.Errorf("model %s: %w", p.Model.Name, err))
+			}
+			sums.Accs = append(sums.Accs, b)
+		}
+		if s.valid == nil {
+			sums.Valid = merged.Valid
+			sums.Preview = pass.NewPreview(s.grid, previewSide)
+			if sums.Preview.Width != merged.PreviewWidth || sums.Preview.Height != merged.PreviewHeight {
+				return nil, fault.Internal(fmt.Errorf("preview of %d x %d cells in the shards, %d x %d here", merged.PreviewWidth, merged.PreviewHeight, sums.Preview.Width, sums.Preview.Height))
+			}
+			copy(sums.Preview.Values, merged.Preview)
+		}
+		if p.null != nil {
+			if merged.Background == nil {
+				return nil, fault.Internal(errors.New("the shards hold no sorting-bias tally of the distance-only null"))
+			}
+			if err := p.null.bg.Merge(merged.Background); err != nil {
+				return nil, fault.Internal(err)
+			}
+		}
+		s.logf("%s: sums of every shard merged (no file read)", p.Model.Name)
+		return sums, nil
+	})
+	return nil
+}
+
+// checkExpectedInputs refuses inputs whose checksums are not
+// Options.ExpectInputs (a merge's shards' inputs), naming the file.
+func (s *Study) checkExpectedInputs() error {
+	want := s.o.ExpectInputs
+	if want == nil {
+		return nil
+	}
+	got := s.res.Inputs
+	for i := range max(len(got), len(want)) {
+		switch {
+		case i >= len(got) || i >= len(want) || got[i].Role != want[i].Name:
+			return fault.BadInput(fmt.Errorf("the inputs differ from the shards' (input %d); merge with the inputs the shards ran on", i+1))
+		case got[i].SHA256 != want[i].SHA256:
+			return fault.BadInput(fmt.Errorf("%s %s changed since the shards ran (SHA-256 %s, the shards read %s); restore the file or run the shards again", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12]))
+		}
+	}
+	return nil
+}

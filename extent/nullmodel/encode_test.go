@@ -1,0 +1,90 @@
+package nullmodel
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"testing"
+)
+
+// randomBackground adds the cells of parts (a cell goes to part c%parts by
+// its position in a shuffled order) into parts Backgrounds and one whole
+// Background, over extents 0..3 (extent 2 never added to).
+func randomBackground(seed uint64, cells, parts int) (whole *Background, split []*Background) {
+	rng := rand.New(rand.NewPCG(seed, 1))
+	whole = &Background{}
+	split = make([]*Background, parts)
+	for i := range split {
+		split[i] = &Background{}
+	}
+	for c := range cells {
+		k := []int{0, 1, 3}[rng.IntN(3)]
+		d := []float64{rng.Float64() * 2e6, rng.Float64(), 0, 1234.5678}[rng.IntN(4)]
+		w := int64(rng.IntN(1<<40)) + 1
+		whole.Add(k, []float64{d}, []int64{w})
+		split[(c*7919)%parts].Add(k, []float64{d}, []int64{w})
+	}
+	return whole, split
+}
+
+// TestBackgroundShardsMergeExactly splits random cells into N = 1, 2, 3
+// and 7 parts, encodes each, decodes and merges them in shuffled order, and
+// requires the single Background's bytes, means, medians and sorting bias.
+func TestBackgroundShardsMergeExactly(t *testing.T) {
+	for _, n := range []int{1, 2, 3, 7} {
+		whole, split := randomBackground(uint64(n), 500, n)
+		rng := rand.New(rand.NewPCG(9, uint64(n)))
+		rng.Shuffle(len(split), func(i, j int) { split[i], split[j] = split[j], split[i] })
+		merged := &Background{}
+		for _, p := range split {
+			d, err := DecodeBackground(EncodeBackground(p))
+			if err != nil {
+				t.Fatalf("N=%d: %v", n, err)
+			}
+			if err := merged.Merge(d); err != nil {
+				t.Fatalf("N=%d: %v", n, err)
+			}
+		}
+		if !bytes.Equal(EncodeBackground(merged), EncodeBackground(whole)) {
+			t.Errorf("N=%d: merged encoding differs from the single background", n)
+		}
+		test := []float64{100, 2500, 7e5}
+		for k := range 4 {
+			if a, b := fmt.Sprint(merged.SortingBias(k, test)), fmt.Sprint(whole.SortingBias(k, test)); a != b {
+				t.Errorf("N=%d extent %d: sorting bias %s, single %s", n, k, a, b)
+			}
+		}
+	}
+}
+
+// TestDecodeBackgroundRefuses: every single-byte change, every truncation
+// and content made impossible behind a valid checksum are refused with
+// ErrBackgroundEncoding.
+func TestDecodeBackgroundRefuses(t *testing.T) {
+	whole, _ := randomBackground(3, 40, 1)
+	data := EncodeBackground(whole)
+	for i := range data {
+		c := bytes.Clone(data)
+		c[i] ^= 0x10
+		if _, err := DecodeBackground(c); !errors.Is(err, ErrBackgroundEncoding) {
+			t.Fatalf("byte %d changed: err %v", i, err)
+		}
+	}
+	for n := 0; n < len(data); n += 7 {
+		if _, err := DecodeBackground(data[:n]); !errors.Is(err, ErrBackgroundEncoding) {
+			t.Fatalf("cut to %d bytes: err %v", n, err)
+		}
+	}
+	// An extent whose area disagrees with its bins, resealed.
+	b := &Background{}
+	b.Add(0, []float64{10, 20}, []int64{5, 6})
+	b.ext[0].area = 12
+	if _, err := DecodeBackground(EncodeBackground(b)); !errors.Is(err, ErrBackgroundEncoding) {
+		t.Errorf("bins not adding up to the area: err %v", err)
+	}
+	b.ext[0].area = -11
+	if _, err := DecodeBackground(EncodeBackground(b)); !errors.Is(err, ErrBackgroundEncoding) {
+		t.Errorf("negative area: err %v", err)
+	}
+}
