@@ -2,10 +2,11 @@ package extent
 
 import (
 	"fmt"
-	"os"
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"areasweep/extent/vocab"
 )
 
 // LayerName is the name of the GeoPackage layer that holds the family.
@@ -33,38 +34,13 @@ func (f *Family) fillMemberBand(band godal.Band, k int) error {
 // feature of layer "extents" in a new GeoPackage at path, with attributes
 // id, kind, params, status, cells and area_km2. path must not exist.
 func (f *Family) WriteGeoPackage(path string) error {
-	Register()
-	if _, err := os.Stat(path); err == nil {
-		return fmt.Errorf("extent: %s exists", path)
-	}
-	ds, err := godal.CreateVector(godal.GeoPackage, path)
-	if err != nil {
-		return fmt.Errorf("extent: create %s: %w", path, err)
-	}
-	fields := []*godal.FieldDefinition{
-		godal.NewFieldDefinition("id", godal.FTString),
-		godal.NewFieldDefinition("kind", godal.FTString),
-		godal.NewFieldDefinition("params", godal.FTString),
-		godal.NewFieldDefinition("status", godal.FTString),
-		godal.NewFieldDefinition("cells", godal.FTInt64),
-		godal.NewFieldDefinition("area_km2", godal.FTReal),
-	}
-	opts := make([]godal.CreateLayerOption, len(fields))
-	for i, fd := range fields {
-		opts[i] = fd
-	}
-	layer, err := ds.CreateLayer(LayerName, f.Grid.srs, godal.GTMultiPolygon, opts...)
-	if err != nil {
-		ds.Close()
-		return fmt.Errorf("extent: create layer in %s: %w", path, err)
-	}
 	// Outlines are traced from the members' runs, members in parallel, and
 	// written in family order.
 	outlines := make([][]byte, len(f.Members))
 	errs := make([]error, len(f.Members))
 	parallelRows(len(f.Members), func() func(k int) {
 		return func(k int) {
-			if f.Members[k].Status != StatusOK {
+			if f.Members[k].Status != vocab.StatusOK {
 				return
 			}
 			mp, err := f.Outline(k)
@@ -74,45 +50,19 @@ func (f *Family) WriteGeoPackage(path string) error {
 			errs[k] = err
 		}
 	})
+	fields := []LayerField{{"id", godal.FTString}, {"kind", godal.FTString}, {"params", godal.FTString},
+		{"status", godal.FTString}, {"cells", godal.FTInt64}, {"area_km2", godal.FTReal}}
+	var feats []Feature
 	for k, m := range f.Members {
-		if m.Status != StatusOK {
+		if m.Status != vocab.StatusOK {
 			continue
 		}
-		b, err := outlines[k], errs[k]
-		outlines[k] = nil
-		if err != nil {
-			ds.Close()
-			return err
+		if errs[k] != nil {
+			return fmt.Errorf("extent: outline of %s: %w", m.ID, errs[k])
 		}
-		geom, err := godal.NewGeometryFromWKB(b, f.Grid.srs)
-		if err != nil {
-			ds.Close()
-			return err
-		}
-		ft, err := layer.NewFeature(geom)
-		geom.Close()
-		if err != nil {
-			ds.Close()
-			return fmt.Errorf("extent: write %s to %s: %w", m.ID, path, err)
-		}
-		fl := ft.Fields()
-		vals := map[string]interface{}{"id": m.ID, "kind": m.Kind, "params": m.Params, "status": string(m.Status), "cells": m.Cells, "area_km2": m.AreaKm2}
-		for name, v := range vals {
-			if err := ft.SetFieldValue(fl[name], v); err != nil {
-				ds.Close()
-				return fmt.Errorf("extent: set %s of %s: %w", name, m.ID, err)
-			}
-		}
-		if err := layer.UpdateFeature(ft); err != nil {
-			ds.Close()
-			return fmt.Errorf("extent: write %s to %s: %w", m.ID, path, err)
-		}
-		ft.Close()
+		feats = append(feats, Feature{WKB: outlines[k], Values: []any{m.ID, string(m.Kind), m.Params, string(m.Status), m.Cells, m.AreaKm2}})
 	}
-	if err := ds.Close(); err != nil {
-		return fmt.Errorf("extent: close %s: %w", path, err)
-	}
-	return nil
+	return WriteLayer(path, LayerName, f.Grid.srs, godal.GTMultiPolygon, fields, feats)
 }
 
 // WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"areasweep/extent/geodesy"
+	"areasweep/extent/vocab"
 )
 
 // geoGrid makes a latitude-longitude grid with every cell valid.
@@ -275,10 +276,10 @@ func TestEmptyAndDuplicateMembers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != StatusDuplicate || m.DuplicateOf != "base" {
+	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != vocab.StatusDuplicate || m.DuplicateOf != "base" {
 		t.Errorf("user_same: status %s of %q", m.Status, m.DuplicateOf)
 	}
-	if m := f.Members[memberIdx(t, f, "user_off")]; m.Status != StatusEmpty {
+	if m := f.Members[memberIdx(t, f, "user_off")]; m.Status != vocab.StatusEmpty {
 		t.Errorf("user_off: status %s", m.Status)
 	}
 	if n := f.Members[memberIdx(t, f, "base")].Cells; n != 400 {
@@ -534,7 +535,7 @@ func TestClipEqualsBuildOnValid(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if later.Members[memberIdx(t, later, "user_wide")].Status != StatusOK {
+	if later.Members[memberIdx(t, later, "user_wide")].Status != vocab.StatusOK {
 		t.Fatal("user_wide differs from base on all cells, so it is not a duplicate before clipping")
 	}
 	later.Clip(valid, trainCells, nil)
@@ -544,7 +545,7 @@ func TestClipEqualsBuildOnValid(t *testing.T) {
 	if !sameMembership(direct, later) || !reflect.DeepEqual(direct.Chains, later.Chains) {
 		t.Error("masks or chains differ")
 	}
-	if m := later.Members[memberIdx(t, later, "user_wide")]; m.Status != StatusDuplicate || m.DuplicateOf != "base" {
+	if m := later.Members[memberIdx(t, later, "user_wide")]; m.Status != vocab.StatusDuplicate || m.DuplicateOf != "base" {
 		t.Errorf("user_wide after clipping: %s of %q, want duplicate of base", m.Status, m.DuplicateOf)
 	}
 }

@@ -16,27 +16,36 @@ import (
 
 var registerOnce sync.Once
 
-// Register makes GDAL's drivers available. It is safe to call many times.
-// GDAL's auxiliary-file machinery is switched off first, so that reading a
-// user's raster never writes a .aux.xml beside it, and the GeoPackage
-// timestamp is fixed (OGR_CURRENT_DATE) so outputs are reproducible.
+// Configure sets GDAL's configuration for areasweep and registers the
+// drivers. A program calls it once at start, before any GDAL use; the
+// library itself never changes the process environment.
+//
+//	GDAL_PAM_ENABLED=NO    reading a user's raster never writes a .aux.xml
+//	                       beside it
+//	OGR_CURRENT_DATE=2000-01-01T00:00:00.000Z
+//	                       GeoPackages carry this date instead of the
+//	                       clock's, so the same run writes the same bytes
+//	                       (GDAL GPKG driver option); a user's value is kept
+//	GDAL_CACHEMAX=64       (MB) each block of a model is read once per pass,
+//	                       so GDAL's block cache (5% of the RAM by default)
+//	                       would only grow the process with the raster; a
+//	                       small one serves the point reads; a user's value
+//	                       is kept
+func Configure() {
+	os.Setenv("GDAL_PAM_ENABLED", "NO")
+	if os.Getenv("OGR_CURRENT_DATE") == "" {
+		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
+	}
+	if os.Getenv("GDAL_CACHEMAX") == "" {
+		os.Setenv("GDAL_CACHEMAX", "64")
+	}
+	Register()
+}
+
+// Register makes GDAL's drivers available. It is safe to call many times
+// and sets no configuration (see Configure).
 func Register() {
-	registerOnce.Do(func() {
-		os.Setenv("GDAL_PAM_ENABLED", "NO")
-		// GeoPackages we write carry this date instead of the clock's, so
-		// the same run writes the same bytes (GDAL GPKG driver option).
-		if os.Getenv("OGR_CURRENT_DATE") == "" {
-			os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
-		}
-		// Each block of a model is read once per pass, so GDAL's block
-		// cache (5% of the RAM by default) would only grow the process with
-		// the raster; a small one serves the point reads. A user's own
-		// setting is kept.
-		if os.Getenv("GDAL_CACHEMAX") == "" {
-			os.Setenv("GDAL_CACHEMAX", "64")
-		}
-		godal.RegisterAll()
-	})
+	registerOnce.Do(godal.RegisterAll)
 }
 
 // Errors about the model grid.
@@ -129,11 +138,11 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	}
 	sr, err := godal.NewSpatialRef(crs)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoCRS, err)
 	}
 	wkt, err := sr.WKT()
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrNoCRS, err)
+		return nil, fmt.Errorf("%w: %w", ErrNoCRS, err)
 	}
 	wgs, err := godal.NewSpatialRefFromEPSG(4326)
 	if err != nil {

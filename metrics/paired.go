@@ -303,7 +303,7 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 	if len(aucs) < 2 {
 		return 0, len(aucs)
 	}
-	_, sd := meanSD(aucs)
+	_, sd := MeanSD(aucs)
 	return sd, len(aucs)
 }
 
@@ -386,8 +386,8 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	cmp.AUC = PairedPlacements(va, vb)
 	cmp.AUCUnweighted = PairedPlacements(ua, ub)
 	if len(pa) > 0 {
-		cmp.AUCOn = [2]float64{mean(va), mean(vb)}
-		cmp.AUCUnweightedOn = [2]float64{mean(ua), mean(ub)}
+		cmp.AUCOn = [2]float64{Mean(va), Mean(vb)}
+		cmp.AUCUnweightedOn = [2]float64{Mean(ua), Mean(ub)}
 	}
 
 	ca, cb := make([]int32, len(a.ids)), make([]int32, len(b.ids))
@@ -437,9 +437,9 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 			return
 		}
 		x.Diff = x.A - x.B
-		_, x.SD = meanSD(ds)
+		_, x.SD = MeanSD(ds)
 		slices.Sort(ds)
-		x.Low, x.High = quantileSorted(ds, 0.025), quantileSorted(ds, 0.975)
+		x.Low, x.High = QuantileSorted(ds, 0.025), QuantileSorted(ds, 0.975)
 	}
 	for i := range cmp.PartialROC {
 		finish(&cmp.PartialROC[i], diffs[i])

@@ -270,7 +270,7 @@ func partialROC(p *presences, s Settings) []PartialROC {
 		if len(rs) == 0 {
 			continue
 		}
-		out[i].RatioMean, out[i].RatioSD = meanSD(rs)
+		out[i].RatioMean, out[i].RatioSD = MeanSD(rs)
 		le := 0
 		for _, v := range rs {
 			if v <= 1 {
@@ -279,8 +279,8 @@ func partialROC(p *presences, s Settings) []PartialROC {
 		}
 		out[i].PValue = float64(le) / float64(len(rs))
 		slices.Sort(rs)
-		out[i].CILow = quantileSorted(rs, 0.025)
-		out[i].CIHigh = quantileSorted(rs, 0.975)
+		out[i].CILow = QuantileSorted(rs, 0.025)
+		out[i].CIHigh = QuantileSorted(rs, 0.975)
 	}
 	return out
 }

@@ -81,7 +81,7 @@ func gapReading(lo, hi float64) string {
 func (a *analysis) aboveNullMetrics() []MetricInfo {
 	var out []MetricInfo
 	for _, m := range a.metrics {
-		if m.Kind == "auc" || m.Kind == "partial_roc" {
+		if m.Kind == MetricAUC || m.Kind == MetricPartialROC {
 			out = append(out, m)
 		}
 	}
@@ -184,7 +184,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 // metricPhrase names metric m inside a sentence: "AUC", "the partial ROC
 // ratio at E = 0.05".
 func metricPhrase(m MetricInfo) string {
-	if m.Kind == "partial_roc" {
+	if m.Kind == MetricPartialROC {
 		return "the partial ROC ratio at E = " + fmtG(m.E)
 	}
 	return m.Label

@@ -3,6 +3,8 @@ package report
 import (
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // TestAboveNullReadings feeds model-minus-null paired records with chosen
@@ -16,7 +18,7 @@ func TestAboveNullReadings(t *testing.T) {
 	model := r.Models[0].Name
 	var ok []Extent
 	for _, e := range r.Extents {
-		if e.Status == "ok" {
+		if e.Status == vocab.StatusOK {
 			ok = append(ok, e)
 		}
 	}

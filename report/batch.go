@@ -26,14 +26,6 @@ type StudyResult struct {
 	Report string
 }
 
-// Batch verdict names: the values of ModelVerdict.Verdict and
-// Verdict.Verdict, which the summary counts.
-const (
-	VerdictSensitive    = "extent-sensitive"
-	VerdictRobust       = "robust"
-	VerdictUndetermined = "undetermined"
-)
-
 // BatchSummary is the summary across the studies of a batch. Studies keep
 // the order they were given in (the study table's order), rows follow
 // them, models in each study's order. It holds no inference of its own:
@@ -64,7 +56,7 @@ type StudySummary struct {
 	// Verdict is the study's AUC verdict (Sensitivity.Verdicts, metric
 	// "auc"): extent-sensitive when AUC is for at least one model, robust
 	// when it is for every model, undetermined otherwise.
-	Verdict    string
+	Verdict    Judgement
 	Models     []string
 	BaseExtent string
 	Extents    int // scored extents
@@ -96,9 +88,9 @@ type BatchRow struct {
 	Effect                float64
 	EffectLow, EffectHigh float64
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
-	// (VerdictSensitive, VerdictRobust or VerdictUndetermined).
+	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
 	Tolerance float64
-	Verdict   string
+	Verdict   Judgement
 	// Null names the null the model is compared with on the base extent
 	// (see baseNullComparison); "" when the study scored none. NullDiff
 	// is AUC of the model minus the null's on the test points both score,
@@ -118,7 +110,7 @@ type BatchRow struct {
 type BatchVerdict struct {
 	Study, Model, Metric, Label string
 	Tolerance                   float64
-	Verdict                     string
+	Verdict                     Judgement
 	BaseExtent                  string
 	Defined                     bool
 	Extent                      string
@@ -185,7 +177,7 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 		sens := r.Sensitivity
 		ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
 		ss.Models = append(ss.Models, sens.ModelNames...)
-		ss.Verdict = VerdictUndetermined
+		ss.Verdict = JudgementUndetermined
 		for _, v := range sens.Verdicts {
 			if v.Metric == "auc" {
 				ss.Verdict = v.Verdict
@@ -222,11 +214,11 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 }
 
 // add counts verdict v into the matching counter.
-func (c *BatchCounts) add(v string, sensitive, robust, undetermined *int) {
+func (c *BatchCounts) add(v Judgement, sensitive, robust, undetermined *int) {
 	switch v {
-	case VerdictSensitive:
+	case JudgementSensitive:
 		*sensitive++
-	case VerdictRobust:
+	case JudgementRobust:
 		*robust++
 	default:
 		*undetermined++
@@ -245,7 +237,7 @@ func oneLine(s string) string {
 // studyRow builds the row of one model of an analysed study.
 func studyRow(r *Results, id, model string) BatchRow {
 	sens := r.Sensitivity
-	row := BatchRow{Study: id, Model: model, BaseExtent: sens.BaseExtent, Verdict: VerdictUndetermined, NullReading: ReadingUndefined}
+	row := BatchRow{Study: id, Model: model, BaseExtent: sens.BaseExtent, Verdict: JudgementUndetermined, NullReading: ReadingUndefined}
 	for _, sp := range sens.Spreads {
 		if sp.Metric == "auc" && sp.Model == model {
 			row.Extents = sp.N

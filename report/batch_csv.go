@@ -67,7 +67,7 @@ func summaryRecord(r BatchRow) []string {
 		r.Study, "ok", r.Model, r.BaseExtent, strconv.Itoa(r.Extents),
 		num(r.AUCBase, r.AUCBaseDefined), num(r.AUCMin, spread), r.MinExtent, num(r.AUCMax, spread), r.MaxExtent, num(r.AUCRange, spread),
 		r.EffectExtent, num(r.Effect, r.EffectDefined), num(r.EffectLow, r.EffectDefined), num(r.EffectHigh, r.EffectDefined),
-		num(r.Tolerance, true), r.Verdict,
+		num(r.Tolerance, true), string(r.Verdict),
 		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null],
 		"",
 	}
@@ -79,7 +79,7 @@ func (s *BatchSummary) WriteVerdictsCSV(w io.Writer) error {
 	recs := [][]string{verdictColumns}
 	for _, v := range s.Verdicts {
 		recs = append(recs, []string{
-			v.Study, v.Model, v.Metric, v.Label, num(v.Tolerance, true), v.Verdict, v.BaseExtent,
+			v.Study, v.Model, v.Metric, v.Label, num(v.Tolerance, true), string(v.Verdict), v.BaseExtent,
 			v.Extent, num(v.Diff, v.Defined), num(v.Low, v.Defined), num(v.High, v.Defined), v.Method,
 		})
 	}

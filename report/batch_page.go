@@ -96,7 +96,7 @@ func (s *BatchSummary) page(svg []byte) ([]byte, error) {
 // pageRowOf formats one study and model for the table.
 func pageRowOf(r BatchRow, link string) pageRow {
 	const none = "–"
-	pr := pageRow{Study: r.Study, Link: link, Model: r.Model, Base: r.BaseExtent, Extents: r.Extents, Verdict: r.Verdict,
+	pr := pageRow{Study: r.Study, Link: link, Model: r.Model, Base: r.BaseExtent, Extents: r.Extents, Verdict: string(r.Verdict),
 		AUCBase: none, Range: none, Effect: none, Interval: none, Null: none, NullInterval: none, Reading: none}
 	if r.AUCBaseDefined {
 		pr.AUCBase = f3(r.AUCBase)

@@ -61,7 +61,7 @@ func handStudy(tol float64, models ...handModel) *Results {
 		sp.Range = sp.Max - sp.Min
 		s.Spreads = append(s.Spreads, sp)
 		mv := ModelVerdict{Metric: "auc", Label: "AUC", Model: hm.name, Tolerance: tol, Base: "base", BaseValue: hm.aucs["base"], BaseDefined: true,
-			Verdict: VerdictUndetermined, Largest: -1}
+			Verdict: JudgementUndetermined, Largest: -1}
 		outside, inside := 0, 0
 		for i, e := range hm.effects {
 			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
@@ -79,9 +79,9 @@ func handStudy(tol float64, models ...handModel) *Results {
 		}
 		switch {
 		case outside > 0:
-			mv.Verdict = VerdictSensitive
+			mv.Verdict = JudgementSensitive
 		case len(mv.Diffs) > 0 && inside == len(mv.Diffs):
-			mv.Verdict = VerdictRobust
+			mv.Verdict = JudgementRobust
 		}
 		mvs = append(mvs, mv)
 		if hm.null != nil {
@@ -146,11 +146,11 @@ func TestSummarizeCounts(t *testing.T) {
 	if got, want := s.CountSentence(), "AUC was extent-sensitive for 2 of 5 studies, robust for 2 and undetermined for 1. 1 further study failed to run and is not counted."; got != want {
 		t.Errorf("count sentence %q\nwant %q", got, want)
 	}
-	verdicts := map[string]string{}
+	verdicts := map[string]Judgement{}
 	for _, st := range s.Studies {
 		verdicts[st.ID] = st.Verdict
 	}
-	for id, v := range map[string]string{"alpha": VerdictSensitive, "beta": VerdictRobust, "gamma": VerdictUndetermined, "eps": VerdictSensitive, "zeta": VerdictRobust, "delta": ""} {
+	for id, v := range map[string]Judgement{"alpha": JudgementSensitive, "beta": JudgementRobust, "gamma": JudgementUndetermined, "eps": JudgementSensitive, "zeta": JudgementRobust, "delta": ""} {
 		if verdicts[id] != v {
 			t.Errorf("study %s: verdict %q, want %q", id, verdicts[id], v)
 		}
@@ -210,7 +210,7 @@ func TestSummaryCSV(t *testing.T) {
 	}
 	eps2 := recs[6]
 	for c, want := range map[string]string{"auc_base": "0.79", "auc_min": "0.72", "auc_min_extent": "wide", "auc_max": "0.79", "auc_range": "0.07000000000000006",
-		"effect_extent": "wide", "auc_diff": "-0.07", "auc_diff_ci_low": "-0.09", "auc_diff_ci_high": "-0.05", "auc_verdict": VerdictSensitive,
+		"effect_extent": "wide", "auc_diff": "-0.07", "auc_diff_ci_low": "-0.09", "auc_diff_ci_high": "-0.05", "auc_verdict": string(JudgementSensitive),
 		"null": DistanceNullName, "auc_minus_null": "-0.05", "null_reading": ReadingBelow, "tolerance": "0.02"} {
 		if eps2[col[c]] != want {
 			t.Errorf("eps/m2 %s = %q, want %q (hand-built values; range 0.79-0.72 in float64)", c, eps2[col[c]], want)
@@ -228,7 +228,7 @@ func TestSummaryCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(vr) != 1+6 || vr[6][0] != "zeta" || vr[6][5] != VerdictRobust {
+	if len(vr) != 1+6 || vr[6][0] != "zeta" || vr[6][5] != string(JudgementRobust) {
 		t.Errorf("verdicts csv %q", vr)
 	}
 }

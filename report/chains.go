@@ -114,13 +114,13 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 		cs.Members = append(cs.Members, g.Outer)
 		cs.MemberAreasKm2 = append(cs.MemberAreasKm2, a.extentArea(g.Outer, g.InnerAreaKm2+g.RingAreaKm2))
 		if d := g.AUCInner - prev; math.Abs(d) > sameAUC {
-			cs.Steps = append(cs.Steps, ChainStep{Kind: "test_points", Inner: g.Inner, Outer: g.Outer,
+			cs.Steps = append(cs.Steps, ChainStep{Kind: StepTestPoints, Inner: g.Inner, Outer: g.Outer,
 				AUCInner: prev, AUCOuter: g.AUCInner, Change: d})
 		} else if len(cs.Steps) == 0 {
 			// Same test points: the score and the ring differ by rounding only.
 			cs.StartAUC = g.AUCInner
 		}
-		st := ChainStep{Kind: "ring", Inner: g.Inner, Outer: g.Outer, RingAreaKm2: g.RingAreaKm2, RingCells: g.RingCells,
+		st := ChainStep{Kind: StepRing, Inner: g.Inner, Outer: g.Outer, RingAreaKm2: g.RingAreaKm2, RingCells: g.RingCells,
 			AUCInner: g.AUCInner, AUCOuter: g.AUCOuter, Change: g.AUCOuter - g.AUCInner}
 		if g.RingCells > 0 && g.RingAreaKm2 > 0 {
 			st.AUCRing, st.AUCRingDefined = g.AUCRing, true
@@ -183,15 +183,15 @@ func chainSentence(cs *ChainSummary) string {
 	}
 	tp, hasTP := 0.0, false
 	for _, x := range cs.Steps {
-		if x.Kind == "test_points" {
+		if x.Kind == StepTestPoints {
 			tp, hasTP = tp+x.Share, true
 		}
 	}
 	tail := ""
-	if hasTP && st.Kind == "ring" {
+	if hasTP && st.Kind == StepRing {
 		tail = fmt.Sprintf(" Test points that enter along the chain account for %s.", pct(tp))
 	}
-	if st.Kind == "test_points" {
+	if st.Kind == StepTestPoints {
 		return fmt.Sprintf("%s; %s of the %s comes from test points that enter with %s, judged against the background of %s.",
 			head, pct(st.Share), word, st.Outer, st.Inner)
 	}

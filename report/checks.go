@@ -4,6 +4,9 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // truncation checks every model for a large floor and straight ROC tails.
@@ -115,12 +118,12 @@ func (a *analysis) independence() Independence {
 	var latN int
 	anyNonZero := false
 	for _, p := range a.r.Points {
-		if p.Status != PointScored {
+		if p.Status != vocab.PointScored {
 			continue
 		}
 		latSum += p.Lat
 		latN++
-		if p.Role != "test" {
+		if p.Role != string(vocab.RoleTest) {
 			continue
 		}
 		d = append(d, p.NearestTrainKm)
@@ -136,7 +139,7 @@ func (a *analysis) independence() Independence {
 	ind.Defined = true
 	sort.Float64s(d)
 	ind.Min, ind.Max = d[0], d[len(d)-1]
-	ind.Q1, ind.Median, ind.Q3 = quantile7(d, 0.25), quantile7(d, 0.5), quantile7(d, 0.75)
+	ind.Q1, ind.Median, ind.Q3 = metrics.QuantileSorted(d, 0.25), metrics.QuantileSorted(d, 0.5), metrics.QuantileSorted(d, 0.75)
 	g := a.r.Grid
 	how := ""
 	if g.Geographic {
@@ -169,7 +172,7 @@ func (a *analysis) independence() Independence {
 func (a *analysis) omitted() []OmittedPoints {
 	nTest := 0
 	for _, p := range a.r.Points {
-		if p.Role == "test" && p.Status == PointScored {
+		if p.Role == string(vocab.RoleTest) && p.Status == vocab.PointScored {
 			nTest++
 		}
 	}

@@ -16,6 +16,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"areasweep/extent/vocab"
 )
 
 // findChromium returns the headless browser to use, or "".
@@ -193,7 +195,7 @@ func TestReportInChromium(t *testing.T) {
 	var ext string
 	var want float64
 	for _, e := range r.Extents {
-		if e.Status != "ok" {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		for _, s := range r.Scores {

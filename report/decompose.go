@@ -48,7 +48,7 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 	ranks := make([][]float64, J)
 	ties := make([]float64, J)
 	for j := 0; j < J; j++ {
-		ranks[j], ties[j] = averageRanks(cols[j], m.HigherIsBetter)
+		ranks[j], ties[j] = ranksBestFirst(cols[j], m.HigherIsBetter)
 	}
 	d.BaseExtent = BaseExtent(d.Extents)
 	base := 0

@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/base64"
 	"fmt"
 	"image"
 	"math"
@@ -11,6 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -31,36 +31,6 @@ func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
 	for _, s := range o.segs {
 		c.StrokeLine2(o.ls, trX(s[0]), trY(s[1]), trX(s[2]), trY(s[3]))
 	}
-}
-
-// decodePreview decodes the preview values and masks.
-func decodePreview(pv *Preview) (vals []byte, masks [][]bool, err error) {
-	n := pv.Width * pv.Height
-	if pv.Width <= 0 || pv.Height <= 0 {
-		return nil, nil, fmt.Errorf("report: preview has size %dx%d", pv.Width, pv.Height)
-	}
-	vals, err = base64.StdEncoding.DecodeString(pv.Values)
-	if err != nil {
-		return nil, nil, fmt.Errorf("report: preview values: %w", err)
-	}
-	if len(vals) != n {
-		return nil, nil, fmt.Errorf("report: preview values hold %d bytes, want %d", len(vals), n)
-	}
-	for k, m := range pv.Masks {
-		bits, err := base64.StdEncoding.DecodeString(m)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: preview mask %d: %w", k, err)
-		}
-		if len(bits)*8 < n {
-			return nil, nil, fmt.Errorf("report: preview mask %d holds %d bits, want %d", k, len(bits)*8, n)
-		}
-		mk := make([]bool, n)
-		for i := range mk {
-			mk[i] = bits[i/8]&(1<<(uint(i)%8)) != 0
-		}
-		masks = append(masks, mk)
-	}
-	return vals, masks, nil
 }
 
 // maskEdges returns the boundary of a mask as merged horizontal and
@@ -122,7 +92,7 @@ func mapGroups(r *Results) []mapGroup {
 	var order []string
 	byChain := map[string][]int{}
 	for i, e := range r.Extents {
-		if e.Status != ExtentOK {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		if _, ok := byChain[e.Chain]; !ok {
@@ -188,15 +158,15 @@ func mapPoints(r *Results, model string) mapMarks {
 	p10 := omittedAt(r, model, metrics.ThresholdP10)
 	var tr, te, om1, om10 plotter.XYs
 	for _, pt := range r.Points {
-		if pt.Status != PointScored || pt.Row < 0 || pt.Col < 0 {
+		if pt.Status != vocab.PointScored || pt.Row < 0 || pt.Col < 0 {
 			continue
 		}
 		x, y := pointXY(r.Grid, pt)
 		xy := plotter.XY{X: x, Y: y}
-		switch pt.Role {
-		case "train":
+		switch vocab.Role(pt.Role) {
+		case vocab.RoleTrain:
 			tr = append(tr, xy)
-		case "test":
+		case vocab.RoleTest:
 			te = append(te, xy)
 			if mtp[pt.ID] {
 				om1 = append(om1, xy)

@@ -46,34 +46,34 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 
 func metricPointOf(m MetricInfo, sc *Score, iterations int) (metricPoint, bool) {
 	switch m.Kind {
-	case "auc":
+	case MetricAUC:
 		p := metricPoint{v: sc.AUC}
 		if iterations >= 2 {
 			p.lo, p.hi, p.bar = sc.AUC-sc.AUCBootSD, sc.AUC+sc.AUCBootSD, true
 		}
 		return p, true
-	case "auc_unweighted":
+	case MetricAUCUnweighted:
 		return metricPoint{v: sc.AUCUnweighted}, true
-	case "partial_roc":
+	case MetricPartialROC:
 		for _, pr := range sc.PartialROC {
 			if math.Abs(pr.E-m.E) > 1e-12 || pr.Iterations-pr.NotFormed < 1 {
 				continue
 			}
 			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: pr.Iterations-pr.NotFormed >= 2}, true
 		}
-	case "omission", "area_fraction":
+	case MetricOmission, MetricAreaFraction:
 		for _, t := range sc.Thresholds {
 			if t.Name != m.Threshold || (t.Name == metrics.ThresholdFixed && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
 				continue
 			}
-			if m.Kind == "area_fraction" {
+			if m.Kind == MetricAreaFraction {
 				return metricPoint{v: t.AreaFraction}, true
 			}
 			if t.N > 0 {
 				return metricPoint{v: t.Omission}, true
 			}
 		}
-	case "boyce":
+	case MetricBoyce:
 		if sc.Boyce != nil {
 			return metricPoint{v: sc.Boyce.Index}, true
 		}
@@ -85,20 +85,20 @@ func metricPointOf(m MetricInfo, sc *Score, iterations int) (metricPoint, bool) 
 // lo..hi: shares span 0 to 1; other metrics span their data, widened to a
 // sensible minimum and snapped to whole tick steps, within the metric's
 // possible values.
-func valueRange(kind string, lo, hi float64) (float64, float64) {
+func valueRange(kind MetricKind, lo, hi float64) (float64, float64) {
 	switch kind {
-	case "omission", "area_fraction":
+	case MetricOmission, MetricAreaFraction:
 		// Shares: the whole 0 to 1, a little wider so that markers at 0
 		// or 1 clear the axis.
 		return -0.04, 1.04
 	}
 	minSpan, floor, ceil := 0.04, math.Inf(-1), math.Inf(1)
 	switch kind {
-	case "auc", "auc_unweighted":
+	case MetricAUC, MetricAUCUnweighted:
 		floor, ceil = 0, 1
-	case "partial_roc":
+	case MetricPartialROC:
 		floor = 0
-	case "boyce":
+	case MetricBoyce:
 		minSpan, floor, ceil = 0.1, -1, 1
 	}
 	if hi-lo < minSpan {

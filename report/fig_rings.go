@@ -22,9 +22,6 @@ type chainWaterfall struct {
 	cs     []*ChainSummary
 }
 
-// subRow is the height of one model's line within a row, in data units.
-const subRow = 1.0
-
 // rows returns the number of rows: start, one per step, end.
 func (w chainWaterfall) rows() int { return len(w.steps) + 2 }
 
@@ -69,7 +66,7 @@ func (w chainWaterfall) Plot(c draw.Canvas, p *plot.Plot) {
 			c.StrokeLine2(connector, trX(prev), prevY, trX(st.AUCInner), y)
 			ls := lineStyle(col, 2.2, nil)
 			text := "new test records"
-			if st.Kind == "ring" {
+			if st.Kind == StepRing {
 				text = "ring AUC –"
 				if st.AUCRingDefined {
 					text = "ring AUC " + f3(st.AUCRing)
@@ -124,7 +121,7 @@ func (w chainWaterfall) DataRange() (xmin, xmax, ymin, ymax float64) {
 func (w chainWaterfall) rowLabels(first, last string) []string {
 	ls := []string{first}
 	for _, st := range w.steps {
-		if st.Kind == "ring" {
+		if st.Kind == StepRing {
 			ls = append(ls, "ring to "+st.Outer)
 		} else {
 			ls = append(ls, "test records of "+st.Outer)

@@ -11,13 +11,15 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/extent/vocab"
 )
 
 // rocExtents returns the usable extents in order of area.
 func rocExtents(r *Results) []Extent {
 	var es []Extent
 	for _, e := range r.Extents {
-		if e.Status == ExtentOK {
+		if e.Status == vocab.StatusOK {
 			es = append(es, e)
 		}
 	}

@@ -21,6 +21,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/extent/vocab"
 )
 
 // parseTickLabel reads a tick label back as a number: "0.25", "−0.5"
@@ -444,7 +446,7 @@ func TestPartialROCPoints(t *testing.T) {
 	r := analyzedSample(t)
 	n := 0
 	for _, m := range r.Sensitivity.Metrics {
-		if m.Kind != "partial_roc" {
+		if m.Kind != MetricPartialROC {
 			continue
 		}
 		for _, model := range r.Sensitivity.ModelNames {
@@ -489,7 +491,7 @@ func TestMapPanels(t *testing.T) {
 	r := analyzedSample(t)
 	chains := map[string]bool{}
 	for _, e := range r.Extents {
-		if e.Status == "ok" && e.Chain != "" {
+		if e.Status == vocab.StatusOK && e.Chain != "" {
 			chains[e.Chain] = true
 		}
 	}

@@ -62,9 +62,9 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
 		if !mv.BaseDefined {
-			return mv.Verdict + " (undefined on " + mv.Base + ")"
+			return string(mv.Verdict) + " (undefined on " + mv.Base + ")"
 		}
-		return mv.Verdict + " (no difference could be formed)"
+		return string(mv.Verdict) + " (no difference could be formed)"
 	}
 	d := mv.Diffs[mv.Largest]
 	if d.Method == "exact" {

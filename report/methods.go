@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // joinList joins items as "a, b and c".
@@ -48,7 +50,7 @@ func methodsText(r *Results) string {
 	lo, hi := 0.0, 0.0
 	first := true
 	for _, e := range r.Extents {
-		if e.Status != ExtentOK {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		fam = append(fam, fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2)))
@@ -272,9 +274,9 @@ func reviewerText(r *Results) string {
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
 		switch v.Verdict {
-		case "robust":
+		case JudgementRobust:
 			robust = append(robust, v.Label)
-		case "extent-sensitive":
+		case JudgementSensitive:
 			sensitive = append(sensitive, v.Label)
 		default:
 			undetermined = append(undetermined, v.Label)

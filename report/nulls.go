@@ -10,6 +10,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/extent/vocab"
 )
 
 // modelLabel is how the report names a model: nulls carry what they are,
@@ -52,7 +54,7 @@ func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
 	ok := map[string]float64{}
 	for _, e := range r.Extents {
-		if e.Status == ExtentOK && e.AreaKm2 > 0 {
+		if e.Status == vocab.StatusOK && e.AreaKm2 > 0 {
 			ok[e.ID] = e.AreaKm2
 		}
 	}
@@ -109,7 +111,7 @@ func nullSentences(r *Results) string {
 	}
 	okExt := map[string]bool{}
 	for _, e := range r.Extents {
-		okExt[e.ID] = e.Status == ExtentOK
+		okExt[e.ID] = e.Status == vocab.StatusOK
 	}
 	for _, n := range nulls(r) {
 		lo, hi, k := math.Inf(1), math.Inf(-1), 0
@@ -126,11 +128,11 @@ func nullSentences(r *Results) string {
 			what = "A distance-only null (minus the geodesic distance from each cell to the nearest training record; Hijmans 2012)"
 		}
 		fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
-		if v, ok := auc(n.Name, "base"); ok {
+		if v, ok := auc(n.Name, vocab.BaseID); ok {
 			fmt.Fprintf(&b, " and was %s on the base region", f3(v))
 			var ms []string
 			for _, m := range r.Models {
-				if mv, ok := auc(m.Name, "base"); ok && !m.IsNull() {
+				if mv, ok := auc(m.Name, vocab.BaseID); ok && !m.IsNull() {
 					ms = append(ms, fmt.Sprintf("%s %s", m.Name, f3(mv)))
 				}
 			}
@@ -147,7 +149,7 @@ func nullSentences(r *Results) string {
 	}
 	lo, hi, k := math.Inf(1), math.Inf(-1), 0
 	for _, e := range r.Extents {
-		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == ExtentOK {
+		if sb := e.SortingBias; sb != nil && sb.Defined && e.Status == vocab.StatusOK {
 			lo, hi, k = math.Min(lo, sb.RatioMean), math.Max(hi, sb.RatioMean), k+1
 		}
 	}

@@ -6,6 +6,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // withNull returns the sample run with a copy of its first model's scores
@@ -26,7 +28,7 @@ func withNull(t *testing.T) *Results {
 	}
 	r.Scores = append(r.Scores, add...)
 	for i := range r.Extents {
-		if r.Extents[i].Status == "ok" {
+		if r.Extents[i].Status == vocab.StatusOK {
 			r.Extents[i].SortingBias = &SortingBias{Defined: true, TestPoints: 3, TestMeanKm: 10, BackgroundMeanKm: 40, RatioMean: 0.25, RatioMedian: 0.3}
 		}
 	}

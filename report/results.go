@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"os"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -161,42 +162,15 @@ type Model struct {
 	FloorShare float64 `json:"floor_share"`
 }
 
-// ExtentStatus says whether a member of the extent family is used: ok, or
-// empty (no valid cell), or a duplicate of an earlier member. Its values
-// are the statuses written to results.json and extents.csv; they are the
-// values of extent.Member.Status (extent needs GDAL, report must not, so
-// each package declares them and cmd/areasweep's tests check they agree).
-type ExtentStatus string
-
-// The extent statuses.
-const (
-	ExtentOK        ExtentStatus = "ok"
-	ExtentEmpty     ExtentStatus = "empty"
-	ExtentDuplicate ExtentStatus = "duplicate"
-)
-
-// PointStatus says what became of an occurrence record: scored, or left
-// out because it fell outside the raster, on a no-data cell, or was thinned.
-// Its values are the statuses written to results.json.
-type PointStatus string
-
-// The point statuses.
-const (
-	PointScored        PointStatus = "scored"
-	PointOutsideRaster PointStatus = "outside_raster"
-	PointNoData        PointStatus = "nodata"
-	PointThinned       PointStatus = "thinned"
-)
-
 // Point is one occurrence record after reading, thinning and sampling.
 type Point struct {
-	ID     int         `json:"id"`   // physical line number in the occurrence file (the header is line 1)
-	Role   string      `json:"role"` // "train" or "test"
-	Lon    float64     `json:"lon"`
-	Lat    float64     `json:"lat"`
-	Row    int         `json:"row"`
-	Col    int         `json:"col"`
-	Status PointStatus `json:"status"`
+	ID     int               `json:"id"`   // physical line number in the occurrence file (the header is line 1)
+	Role   string            `json:"role"` // vocab.RoleTrain or vocab.RoleTest
+	Lon    float64           `json:"lon"`
+	Lat    float64           `json:"lat"`
+	Row    int               `json:"row"`
+	Col    int               `json:"col"`
+	Status vocab.PointStatus `json:"status"`
 	// NearestTrainKm is, for scored test points, the geodesic distance to
 	// the nearest scored training point; 0 for other points.
 	NearestTrainKm float64 `json:"nearest_train_km"`
@@ -214,16 +188,16 @@ type PointCounts struct {
 // Extent is one member of the extent family.
 type Extent struct {
 	ID            string  `json:"id"`
-	Kind          string  `json:"kind"`
+	Kind          string  `json:"kind"` // a vocab.Kind
 	Params        string  `json:"params"`
 	Cells         int64   `json:"cells"`
 	AreaKm2       float64 `json:"area_km2"`
 	TrainPoints   int     `json:"train_points"`
 	TestPoints    int     `json:"test_points"`
 	ShareOfRaster float64 `json:"share_of_raster"`
-	// Status is ExtentOK, ExtentEmpty or ExtentDuplicate; DuplicateOf names
-	// the earlier member with the same cells.
-	Status      ExtentStatus `json:"status"`
+	// Status is vocab.StatusOK, StatusEmpty or StatusDuplicate;
+	// DuplicateOf names the earlier member with the same cells.
+	Status      vocab.Status `json:"status"`
 	DuplicateOf string       `json:"duplicate_of,omitempty"`
 	// Chain names the nested chain this member belongs to (e.g. "region"),
 	// ordered by area; empty when the member is in no chain.
@@ -474,7 +448,7 @@ func MetricKeyOmission(name metrics.ThresholdRule, value float64) string {
 // it is among ids, else the first of ids ("" when ids is empty).
 func BaseExtent(ids []string) string {
 	for _, id := range ids {
-		if id == "base" {
+		if id == vocab.BaseID {
 			return id
 		}
 	}

@@ -1,11 +1,7 @@
 package report
 
 import (
-	"errors"
-	"fmt"
-	"math"
-	"strconv"
-
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -90,16 +86,48 @@ type Sensitivity struct {
 	Warnings []string `json:"warnings"`
 }
 
+// MetricKind is the kind of an analysed metric.
+type MetricKind string
+
+// The metric kinds.
+const (
+	MetricAUC           MetricKind = "auc"
+	MetricAUCUnweighted MetricKind = "auc_unweighted"
+	MetricPartialROC    MetricKind = "partial_roc"
+	MetricOmission      MetricKind = "omission"
+	MetricAreaFraction  MetricKind = "area_fraction"
+	MetricBoyce         MetricKind = "boyce"
+)
+
+// Judgement is the equivalence verdict on a metric (see ModelVerdict).
+type Judgement string
+
+// The verdicts.
+const (
+	JudgementRobust       Judgement = "robust"
+	JudgementSensitive    Judgement = "extent-sensitive"
+	JudgementUndetermined Judgement = "undetermined"
+)
+
+// StepKind says what a ChainStep adds to the inner extent: StepRing, the
+// cells of a ring (and the test points in it), or StepTestPoints, test
+// points that first fall inside with the outer extent.
+type StepKind string
+
+// The chain step kinds.
+const (
+	StepRing       StepKind = "ring"
+	StepTestPoints StepKind = "test_points"
+)
+
 // MetricInfo names one analysed metric.
 type MetricInfo struct {
 	// Key is a stable identifier: "auc", "auc_unweighted",
 	// "partial_roc_e0.05", "omission_minimum_training_presence",
 	// "omission_fixed_0.5", "area_fraction_mtp", "boyce".
-	Key   string `json:"key"`
-	Label string `json:"label"`
-	// Kind is "auc", "auc_unweighted", "partial_roc", "omission",
-	// "area_fraction" or "boyce".
-	Kind string `json:"kind"`
+	Key   string     `json:"key"`
+	Label string     `json:"label"`
+	Kind  MetricKind `json:"kind"`
 	// E is the allowable omission of a partial ROC metric.
 	E float64 `json:"e,omitempty"`
 	// Threshold and ThresholdValue identify an omission metric (the value
@@ -119,7 +147,7 @@ type MetricInfo struct {
 // SkippedExtent is an extent left out of the analysis.
 type SkippedExtent struct {
 	ID          string       `json:"id"`
-	Status      ExtentStatus `json:"status"`
+	Status      vocab.Status `json:"status"`
 	DuplicateOf string       `json:"duplicate_of,omitempty"`
 	Reason      string       `json:"reason"`
 }
@@ -213,13 +241,13 @@ type ExtentDifference struct {
 //	                 the largest difference and its interval), or no
 //	                 difference could be formed
 type ModelVerdict struct {
-	Metric    string  `json:"metric"`
-	Label     string  `json:"label"`
-	Model     string  `json:"model"`
-	Tolerance float64 `json:"tolerance"`
-	Verdict   string  `json:"verdict"`
-	Base      string  `json:"base_extent"`
-	BaseValue float64 `json:"base_value"`
+	Metric    string    `json:"metric"`
+	Label     string    `json:"label"`
+	Model     string    `json:"model"`
+	Tolerance float64   `json:"tolerance"`
+	Verdict   Judgement `json:"verdict"`
+	Base      string    `json:"base_extent"`
+	BaseValue float64   `json:"base_value"`
 	// BaseDefined is false when the metric is undefined on the base extent.
 	BaseDefined bool               `json:"base_defined"`
 	Diffs       []ExtentDifference `json:"differences"`
@@ -234,10 +262,10 @@ type ModelVerdict struct {
 // Verdict sums up the ModelVerdicts of one metric: extent-sensitive when
 // any model's is, robust when every model's is, undetermined otherwise.
 type Verdict struct {
-	Metric    string  `json:"metric"`
-	Label     string  `json:"label"`
-	Tolerance float64 `json:"tolerance"`
-	Verdict   string  `json:"verdict"`
+	Metric    string    `json:"metric"`
+	Label     string    `json:"label"`
+	Tolerance float64   `json:"tolerance"`
+	Verdict   Judgement `json:"verdict"`
 	// Sensitive, Robust and Undetermined list the models by verdict.
 	Sensitive    []string `json:"sensitive_models"`
 	Robust       []string `json:"robust_models"`
@@ -358,19 +386,18 @@ type ChainSummary struct {
 
 // ChainStep is one step of a ChainSummary.
 type ChainStep struct {
-	// Kind is "ring" or "test_points".
-	Kind           string  `json:"kind"`
-	Inner          string  `json:"inner"`
-	Outer          string  `json:"outer"`
-	RingAreaKm2    float64 `json:"ring_area_km2"`
-	RingCells      int64   `json:"ring_cells"`
-	AUCInner       float64 `json:"auc_inner"`
-	AUCRing        float64 `json:"auc_ring"`
-	AUCRingDefined bool    `json:"auc_ring_defined"`
-	AUCOuter       float64 `json:"auc_outer"`
-	Change         float64 `json:"change"`
-	Share          float64 `json:"share"`
-	MixResidual    float64 `json:"mix_residual"`
+	Kind           StepKind `json:"kind"`
+	Inner          string   `json:"inner"`
+	Outer          string   `json:"outer"`
+	RingAreaKm2    float64  `json:"ring_area_km2"`
+	RingCells      int64    `json:"ring_cells"`
+	AUCInner       float64  `json:"auc_inner"`
+	AUCRing        float64  `json:"auc_ring"`
+	AUCRingDefined bool     `json:"auc_ring_defined"`
+	AUCOuter       float64  `json:"auc_outer"`
+	Change         float64  `json:"change"`
+	Share          float64  `json:"share"`
+	MixResidual    float64  `json:"mix_residual"`
 }
 
 // TruncationCheck flags a model whose predictions look truncated: a floor
@@ -431,256 +458,4 @@ type OmittedPoints struct {
 	TestPoints int                   `json:"test_points"`
 	Share      float64               `json:"share"`
 	IDs        []int                 `json:"ids"`
-}
-
-// Analyze computes the sensitivity analysis from r's scores and stores it
-// in r.Sensitivity. Deterministic. Unscored scores and extents whose status
-// is not "ok" are left out of every statistic and listed instead.
-func Analyze(r *Results) error {
-	if r == nil {
-		return errors.New("report: Analyze: nil results")
-	}
-	if err := checkFinite(r); err != nil {
-		return err
-	}
-	a := newAnalysis(r)
-	s := &Sensitivity{
-		Metrics:        a.metrics,
-		ModelNames:     a.models,
-		SkippedExtents: []SkippedExtent{},
-		Unscored:       []UnscoredScore{},
-		Spreads:        []Spread{},
-		ModelVerdicts:  []ModelVerdict{},
-		Verdicts:       []Verdict{},
-		Rankings:       []ModelRanking{},
-		AboveNull:      []AboveNull{},
-		Decompositions: []Decomposition{},
-		Chains:         []ChainSummary{},
-		Truncation:     []TruncationCheck{},
-		OmittedPoints:  []OmittedPoints{},
-		Warnings:       append([]string{}, a.warnings...),
-	}
-	s.ScoredExtents, s.SkippedExtents, s.Unscored = a.extentUse()
-	s.BaseExtent = BaseExtent(s.ScoredExtents)
-	a.base = s.BaseExtent
-	s.TestPoints, s.TestPointsVary = a.testPointCounts(s.ScoredExtents)
-	for _, m := range a.metrics {
-		for _, model := range a.models {
-			s.Spreads = append(s.Spreads, a.spread(m, model))
-		}
-	}
-	for _, m := range a.metrics {
-		var mv []ModelVerdict
-		for _, model := range a.models {
-			mv = append(mv, a.modelVerdict(m, model))
-		}
-		s.ModelVerdicts = append(s.ModelVerdicts, mv...)
-		s.Verdicts = append(s.Verdicts, verdictFor(m, mv))
-	}
-	if len(a.models) >= 2 {
-		for _, m := range a.metrics {
-			s.Rankings = append(s.Rankings, a.rankings(m)...)
-			s.Decompositions = append(s.Decompositions, a.decompose(m))
-		}
-	}
-	s.AboveNull = a.aboveNull(s.ScoredExtents)
-	chains, w := a.chains()
-	s.Chains = chains
-	s.Warnings = append(s.Warnings, w...)
-	s.Truncation = a.truncation()
-	s.Independence = a.independence()
-	if s.Independence.Warn {
-		s.Warnings = append(s.Warnings, s.Independence.Sentence)
-	}
-	for _, t := range s.Truncation {
-		if t.Flag {
-			s.Warnings = append(s.Warnings, t.Sentence)
-		}
-	}
-	s.OmittedPoints = a.omitted()
-	s.Headline = headline(a, s)
-	r.Sensitivity = s
-	return nil
-}
-
-// analysis holds the indexes Analyze works from.
-type analysis struct {
-	r        *Results
-	models   []string
-	metrics  []MetricInfo
-	extents  []Extent // status "ok", family order
-	extIndex map[string]int
-	scores   map[[2]string]*Score // (model, extent) -> first score
-	warnings []string
-	base     string // Sensitivity.BaseExtent
-}
-
-func newAnalysis(r *Results) *analysis {
-	a := &analysis{r: r, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
-	seenModel := map[string]bool{}
-	// Nulls are references, not models: they never enter the analysis.
-	for _, m := range r.Models {
-		if m.IsNull() {
-			seenModel[m.Name] = true
-		}
-	}
-	for _, m := range r.Models {
-		if !seenModel[m.Name] {
-			seenModel[m.Name] = true
-			a.models = append(a.models, m.Name)
-		}
-	}
-	allExt := map[string]bool{}
-	for i, e := range r.Extents {
-		allExt[e.ID] = true
-		if e.Status == ExtentOK {
-			a.extIndex[e.ID] = i
-			a.extents = append(a.extents, e)
-		}
-	}
-	for i := range r.Scores {
-		sc := &r.Scores[i]
-		if isNull(r, sc.Model) {
-			continue
-		}
-		if !allExt[sc.Extent] {
-			a.warnings = append(a.warnings, fmt.Sprintf("score of model %s names extent %q, which is not in the extent family: ignored", sc.Model, sc.Extent))
-			continue
-		}
-		if !seenModel[sc.Model] {
-			seenModel[sc.Model] = true
-			a.models = append(a.models, sc.Model)
-		}
-		k := [2]string{sc.Model, sc.Extent}
-		if _, dup := a.scores[k]; dup {
-			a.warnings = append(a.warnings, fmt.Sprintf("model %s has two scores on extent %s: the first is used", sc.Model, sc.Extent))
-			continue
-		}
-		a.scores[k] = sc
-	}
-	a.metrics = buildMetrics(r)
-	return a
-}
-
-// score returns the usable score of model on extent (ok extent, scored).
-func (a *analysis) score(model, extent string) *Score {
-	if _, ok := a.extIndex[extent]; !ok {
-		return nil
-	}
-	sc := a.scores[[2]string{model, extent}]
-	if sc == nil || !sc.Scored {
-		return nil
-	}
-	return sc
-}
-
-func (a *analysis) extentUse() ([]string, []SkippedExtent, []UnscoredScore) {
-	scored := []string{}
-	skipped := []SkippedExtent{}
-	uns := []UnscoredScore{}
-	for _, e := range a.r.Extents {
-		switch e.Status {
-		case ExtentOK:
-		case ExtentEmpty:
-			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "the extent has no valid cells"})
-			continue
-		case ExtentDuplicate:
-			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, DuplicateOf: e.DuplicateOf, Reason: "same cells as " + e.DuplicateOf})
-			continue
-		default:
-			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "status " + strconv.Quote(string(e.Status))})
-			continue
-		}
-		any := false
-		for _, m := range a.models {
-			if a.score(m, e.ID) != nil {
-				any = true
-			} else {
-				reason := "no score"
-				if sc := a.scores[[2]string{m, e.ID}]; sc != nil && sc.NotScored != "" {
-					reason = sc.NotScored
-				}
-				uns = append(uns, UnscoredScore{Model: m, Extent: e.ID, Reason: reason})
-			}
-		}
-		if any {
-			scored = append(scored, e.ID)
-		} else {
-			skipped = append(skipped, SkippedExtent{ID: e.ID, Status: e.Status, Reason: "no model could be scored"})
-		}
-	}
-	return scored, skipped, uns
-}
-
-// checkFinite rejects NaN and Inf in the numbers the analysis reads.
-func checkFinite(r *Results) error {
-	bad := func(v float64) bool { return math.IsNaN(v) || math.IsInf(v, 0) }
-	for _, e := range r.Extents {
-		if bad(e.AreaKm2) {
-			return fmt.Errorf("report: extent %s: area_km2 is not finite", e.ID)
-		}
-	}
-	for _, m := range r.Models {
-		if bad(m.FloorShare) || bad(m.ValueMin) || bad(m.ValueMax) {
-			return fmt.Errorf("report: model %s: value range or floor share is not finite", m.Name)
-		}
-	}
-	for _, s := range r.Scores {
-		where := fmt.Sprintf("report: score %s on %s", s.Model, s.Extent)
-		if bad(s.AUC) || bad(s.AUCUnweighted) || bad(s.AUCTrain) || bad(s.AUCBootSD) || bad(s.AUCSE) || bad(s.AUCUnweightedSEDeLong) || bad(s.AreaKm2) {
-			return fmt.Errorf("%s: an AUC field is not finite", where)
-		}
-		for _, v := range append(append([]float64{}, s.Placements...), s.PlacementsUnweighted...) {
-			if bad(v) {
-				return fmt.Errorf("%s: a placement is not finite", where)
-			}
-		}
-		for _, p := range s.PartialROC {
-			if bad(p.E) || bad(p.Ratio) || bad(p.RatioMean) || bad(p.RatioSD) || bad(p.CILow) || bad(p.CIHigh) || bad(p.PValue) ||
-				bad(p.XE) || bad(p.DiscreteXE) || bad(p.DiscreteRatio) {
-				return fmt.Errorf("%s: partial ROC at E=%g is not finite", where, p.E)
-			}
-		}
-		for _, t := range s.Thresholds {
-			if bad(t.Value) || bad(t.Omission) || bad(t.AreaFraction) || bad(t.PBinomial) {
-				return fmt.Errorf("%s: threshold %s is not finite", where, t.Name)
-			}
-		}
-		if s.Boyce != nil && bad(s.Boyce.Index) {
-			return fmt.Errorf("%s: Boyce index is not finite", where)
-		}
-	}
-	for _, p := range r.Paired {
-		if bad(p.A) || bad(p.B) || bad(p.Diff) || bad(p.SE) || bad(p.Low) || bad(p.High) || bad(p.TestSetShift) {
-			return fmt.Errorf("report: paired %s of %s/%s against %s/%s is not finite", p.Metric, p.Model, p.Extent, p.OtherModel, p.OtherExtent)
-		}
-	}
-	for _, g := range r.Rings {
-		if bad(g.AUCInner) || bad(g.AUCRing) || bad(g.AUCOuter) || bad(g.InnerAreaKm2) || bad(g.RingAreaKm2) {
-			return fmt.Errorf("report: ring %s-%s of model %s is not finite", g.Inner, g.Outer, g.Model)
-		}
-	}
-	for _, c := range r.Curves {
-		for i := range c.X {
-			if bad(c.X[i]) || (i < len(c.Y) && bad(c.Y[i])) {
-				return fmt.Errorf("report: ROC curve of model %s on %s is not finite", c.Model, c.Extent)
-			}
-		}
-	}
-	for _, p := range r.Points {
-		if bad(p.NearestTrainKm) || bad(p.Lat) || bad(p.Lon) {
-			return fmt.Errorf("report: point %d: coordinates or distance not finite", p.ID)
-		}
-	}
-	return nil
-}
-
-// isNull reports whether the model named name is a null.
-func isNull(r *Results, name string) bool {
-	for _, m := range r.Models {
-		if m.Name == name {
-			return m.IsNull()
-		}
-	}
-	return false
 }

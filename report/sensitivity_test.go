@@ -47,9 +47,10 @@ type golden struct {
 	BaseExtent    string `json:"base_extent"`
 	TestPoints    []int  `json:"test_points"`
 	ModelVerdicts []struct {
-		Metric, Model, Verdict string
-		Largest                int
-		Diffs                  []struct {
+		Metric, Model string
+		Verdict       Judgement
+		Largest       int
+		Diffs         []struct {
 			Extent          string
 			Defined         bool
 			Diff, Low, High float64
@@ -57,7 +58,8 @@ type golden struct {
 		}
 	} `json:"model_verdicts"`
 	Verdicts []struct {
-		Metric, Verdict                 string
+		Metric                          string
+		Verdict                         Judgement
 		Sensitive, Robust, Undetermined []string
 	}
 	Rankings []struct {
@@ -87,7 +89,8 @@ type golden struct {
 		EndAUC       float64 `json:"end_auc"`
 		Change       float64
 		Steps        []struct {
-			Kind, Outer string
+			Kind        StepKind
+			Outer       string
 			Change      float64
 			Share       float64
 			MixResidual float64 `json:"mix_residual"`
@@ -202,7 +205,7 @@ func TestVerdictsAgainstGolden(t *testing.T) {
 	if len(s.ModelVerdicts) != len(g.ModelVerdicts) {
 		t.Fatalf("%d model verdicts, golden %d", len(s.ModelVerdicts), len(g.ModelVerdicts))
 	}
-	kinds := map[string]int{}
+	kinds := map[Judgement]int{}
 	for i, w := range g.ModelVerdicts {
 		mv := s.ModelVerdicts[i]
 		t.Run(w.Metric+"/"+w.Model, func(t *testing.T) {
@@ -221,13 +224,13 @@ func TestVerdictsAgainstGolden(t *testing.T) {
 				near(t, "low", d.Low, wd.Low, 1e-12)
 				near(t, "high", d.High, wd.High, 1e-12)
 			}
-			if mv.Sentence == "" || !strings.Contains(mv.Sentence, mv.Verdict) {
+			if mv.Sentence == "" || !strings.Contains(mv.Sentence, string(mv.Verdict)) {
 				t.Errorf("sentence %q does not state the verdict %s", mv.Sentence, mv.Verdict)
 			}
 		})
 		kinds[w.Verdict]++
 	}
-	if kinds["robust"] == 0 || kinds["extent-sensitive"] == 0 || kinds["undetermined"] == 0 {
+	if kinds[JudgementRobust] == 0 || kinds[JudgementSensitive] == 0 || kinds[JudgementUndetermined] == 0 {
 		t.Errorf("the sample meets verdicts %v; want all three kinds", kinds)
 	}
 	for i, w := range g.Verdicts {
@@ -465,17 +468,13 @@ func TestStatsWorkedExamples(t *testing.T) {
 			}
 		})
 	}
-	r, tie := averageRanks([]float64{0.9, 0.7, 0.9, 0.5}, true)
+	r, tie := ranksBestFirst([]float64{0.9, 0.7, 0.9, 0.5}, true)
 	if !reflect.DeepEqual(r, []float64{1.5, 3, 1.5, 4}) || tie != 6 {
-		t.Errorf("averageRanks = %v tie %v, want [1.5 3 1.5 4] tie 6 (hand computation)", r, tie)
+		t.Errorf("ranksBestFirst = %v tie %v, want [1.5 3 1.5 4] tie 6 (hand computation)", r, tie)
 	}
-	// Hyndman & Fan type 7 on 1..5: Q(0.25) = 2, Q(0.1) = 1.4 (hand computation).
-	xs := []float64{1, 2, 3, 4, 5}
-	if q := quantile7(xs, 0.25); q != 2 {
-		t.Errorf("Q(0.25) = %v, want 2", q)
-	}
-	if q := quantile7(xs, 0.1); math.Abs(q-1.4) > 1e-12 {
-		t.Errorf("Q(0.1) = %v, want 1.4", q)
+	r, tie = ranksBestFirst([]float64{0.9, 0.7, 0.9, 0.5}, false)
+	if !reflect.DeepEqual(r, []float64{3.5, 2, 3.5, 1}) || tie != 6 {
+		t.Errorf("ranksBestFirst (lower better) = %v tie %v, want [3.5 2 3.5 1] tie 6 (hand computation)", r, tie)
 	}
 	// OLS through (0,1), (1,3), (2,5): slope 2 exactly, r^2 = 1.
 	f, ok := ols([]float64{0, 1, 2}, []float64{1, 3, 5})

@@ -22,8 +22,8 @@ func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 func buildMetrics(r *Results) []MetricInfo {
 	st := r.Settings
 	ms := []MetricInfo{
-		{Key: "auc", Label: "AUC", Kind: "auc", HigherIsBetter: true, Tolerance: st.ToleranceAUC},
-		{Key: "auc_unweighted", Label: "AUC (cells unweighted)", Kind: "auc_unweighted", HigherIsBetter: true, Tolerance: st.ToleranceAUC},
+		{Key: "auc", Label: "AUC", Kind: MetricAUC, HigherIsBetter: true, Tolerance: st.ToleranceAUC},
+		{Key: "auc_unweighted", Label: "AUC (cells unweighted)", Kind: MetricAUCUnweighted, HigherIsBetter: true, Tolerance: st.ToleranceAUC},
 	}
 	es := append([]float64(nil), r.Settings.E...)
 	seenE := map[float64]bool{}
@@ -40,7 +40,7 @@ func buildMetrics(r *Results) []MetricInfo {
 	}
 	for _, e := range es {
 		ms = append(ms, MetricInfo{Key: MetricKeyPartialROC(e), Label: "partial ROC ratio, E = " + fmtG(e),
-			Kind: "partial_roc", E: e, HigherIsBetter: true, Tolerance: st.TolerancePartialROC})
+			Kind: MetricPartialROC, E: e, HigherIsBetter: true, Tolerance: st.TolerancePartialROC})
 	}
 	seenT := map[string]bool{}
 	hasMTP := false
@@ -51,7 +51,7 @@ func buildMetrics(r *Results) []MetricInfo {
 		for _, t := range s.Thresholds {
 			key := MetricKeyOmission(t.Name, t.Value)
 			label := "omission at " + thresholdLabel(t.Name)
-			mi := MetricInfo{Kind: "omission", Threshold: t.Name, Tolerance: st.ToleranceOmission}
+			mi := MetricInfo{Kind: MetricOmission, Threshold: t.Name, Tolerance: st.ToleranceOmission}
 			if t.Name == metrics.ThresholdFixed {
 				label += " " + fmtG(t.Value)
 				mi.ThresholdValue = t.Value
@@ -69,11 +69,11 @@ func buildMetrics(r *Results) []MetricInfo {
 	}
 	if hasMTP {
 		ms = append(ms, MetricInfo{Key: "area_fraction_mtp", Label: "predicted area at minimum training presence",
-			Kind: "area_fraction", Threshold: metrics.ThresholdMTP, Tolerance: st.ToleranceOmission})
+			Kind: MetricAreaFraction, Threshold: metrics.ThresholdMTP, Tolerance: st.ToleranceOmission})
 	}
 	for _, s := range r.Scores {
 		if s.Scored && s.Boyce != nil {
-			ms = append(ms, MetricInfo{Key: "boyce", Label: "Boyce index", Kind: "boyce", HigherIsBetter: true, Tolerance: st.ToleranceBoyce})
+			ms = append(ms, MetricInfo{Key: "boyce", Label: "Boyce index", Kind: MetricBoyce, HigherIsBetter: true, Tolerance: st.ToleranceBoyce})
 			break
 		}
 	}
@@ -92,12 +92,12 @@ func thresholdLabel(name metrics.ThresholdRule) string {
 // tells whether boot holds a per-extent SD and lo/hi the interval to draw.
 func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float64, hasBoot bool) {
 	switch m.Kind {
-	case "auc":
+	case MetricAUC:
 		hasBoot = s.AUCBootSD > 0
 		return s.AUC, true, s.AUCBootSD, s.AUC - s.AUCBootSD, s.AUC + s.AUCBootSD, hasBoot
-	case "auc_unweighted":
+	case MetricAUCUnweighted:
 		return s.AUCUnweighted, true, 0, 0, 0, false
-	case "partial_roc":
+	case MetricPartialROC:
 		for _, p := range s.PartialROC {
 			if math.Abs(p.E-m.E) > 1e-12 {
 				continue
@@ -108,12 +108,12 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 			hasBoot = p.Iterations-p.NotFormed >= 2
 			return p.Ratio, true, p.RatioSD, p.CILow, p.CIHigh, hasBoot
 		}
-	case "omission", "area_fraction":
+	case MetricOmission, MetricAreaFraction:
 		for _, t := range s.Thresholds {
 			if t.Name != m.Threshold || (t.Name == metrics.ThresholdFixed && math.Abs(t.Value-m.ThresholdValue) > 1e-12) {
 				continue
 			}
-			if m.Kind == "area_fraction" {
+			if m.Kind == MetricAreaFraction {
 				return t.AreaFraction, true, 0, 0, 0, false
 			}
 			if t.N <= 0 {
@@ -121,7 +121,7 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 			}
 			return t.Omission, true, 0, 0, 0, false
 		}
-	case "boyce":
+	case MetricBoyce:
 		if s.Boyce != nil {
 			return s.Boyce.Index, true, 0, 0, 0, false
 		}
@@ -132,7 +132,7 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 // spread describes metric m for model across usable extents.
 func (a *analysis) spread(m MetricInfo, model string) Spread {
 	sp := Spread{Metric: m.Key, Model: model, Extents: []string{}, AreasKm2: []float64{}, Values: []float64{}}
-	withBoot := m.Kind == "auc" || m.Kind == "partial_roc"
+	withBoot := m.Kind == MetricAUC || m.Kind == MetricPartialROC
 	for _, e := range a.extents {
 		sc := a.score(model, e.ID)
 		if sc == nil {
@@ -167,9 +167,12 @@ func (a *analysis) spread(m MetricInfo, model string) Spread {
 			}
 		}
 		sp.Range = sp.Max - sp.Min
-		sp.Mean = meanOf(sp.Values)
+		sp.Mean = metrics.Mean(sp.Values)
 	}
-	sp.SD, sp.SDDefined = sampleSD(sp.Values)
+	if len(sp.Values) >= 2 {
+		_, sp.SD = metrics.MeanSD(sp.Values)
+		sp.SDDefined = true
+	}
 	return sp
 }
 

@@ -1,70 +1,6 @@
 package report
 
-import (
-	"math"
-	"sort"
-)
-
-// meanOf returns the arithmetic mean of xs (0 for an empty slice).
-func meanOf(xs []float64) float64 {
-	if len(xs) == 0 {
-		return 0
-	}
-	var s float64
-	for _, x := range xs {
-		s += x
-	}
-	return s / float64(len(xs))
-}
-
-// sampleSD returns the sample standard deviation (divisor n-1) of xs and
-// whether it is defined (n >= 2):
-//
-//	s = sqrt( sum_i (x_i - mean)^2 / (n - 1) )
-func sampleSD(xs []float64) (float64, bool) {
-	n := len(xs)
-	if n < 2 {
-		return 0, false
-	}
-	m := meanOf(xs)
-	var ss float64
-	for _, x := range xs {
-		d := x - m
-		ss += d * d
-	}
-	return math.Sqrt(ss / float64(n-1)), true
-}
-
-// quantile7 returns the p-quantile of xs by linear interpolation between
-// order statistics (Hyndman & Fan 1996, Am. Stat. 50:361, definition 7, the
-// default of R and numpy):
-//
-//	h = (n-1) p,  Q(p) = x_(floor h) + (h - floor h) (x_(floor h + 1) - x_(floor h))
-//
-// with 0-based order statistics. xs must be sorted ascending and non-empty.
-func quantile7(sorted []float64, p float64) float64 {
-	n := len(sorted)
-	if n == 1 {
-		return sorted[0]
-	}
-	h := float64(n-1) * p
-	lo := int(math.Floor(h))
-	if lo >= n-1 {
-		return sorted[n-1]
-	}
-	return sorted[lo] + (h-float64(lo))*(sorted[lo+1]-sorted[lo])
-}
-
-// medianOf returns the median of xs (the mean of the two middle values for
-// an even count); xs is not modified. It returns false for an empty slice.
-func medianOf(xs []float64) (float64, bool) {
-	if len(xs) == 0 {
-		return 0, false
-	}
-	s := append([]float64(nil), xs...)
-	sort.Float64s(s)
-	return quantile7(s, 0.5), true
-}
+import "areasweep/metrics"
 
 // olsFit is an ordinary least-squares line y = a + b x.
 type olsFit struct {
@@ -87,7 +23,7 @@ func ols(x, y []float64) (olsFit, bool) {
 	if n < 2 || len(y) != n {
 		return f, false
 	}
-	mx, my := meanOf(x), meanOf(y)
+	mx, my := metrics.Mean(x), metrics.Mean(y)
 	var sxx, sxy, syy float64
 	for i := range x {
 		dx, dy := x[i]-mx, y[i]-my
@@ -112,39 +48,20 @@ func ols(x, y []float64) (olsFit, bool) {
 	return f, true
 }
 
-// averageRanks ranks xs so that rank 1 goes to the best value (largest when
-// higherBetter, else smallest); tied values share the mean of the ranks they
-// span (the "average" or mid-rank method). It also returns the tie term
-// sum over tie groups of (t^3 - t) used by Kendall's W.
-func averageRanks(xs []float64, higherBetter bool) ([]float64, float64) {
-	n := len(xs)
-	idx := make([]int, n)
-	for i := range idx {
-		idx[i] = i
-	}
-	better := func(a, b float64) bool {
-		if higherBetter {
-			return a > b
+// ranksBestFirst ranks xs so that rank 1 goes to the best value (largest
+// when higherBetter, else smallest); tied values share the mean of the
+// ranks they span (the "average" or mid-rank method). It also returns the
+// tie term sum over tie groups of (t^3 - t) used by Kendall's W. See
+// metrics.Ranks.
+func ranksBestFirst(xs []float64, higherBetter bool) ([]float64, float64) {
+	ranks, ties := metrics.Ranks(xs)
+	if higherBetter {
+		n := float64(len(ranks))
+		for i, r := range ranks {
+			ranks[i] = n + 1 - r
 		}
-		return a < b
 	}
-	sort.SliceStable(idx, func(i, j int) bool { return better(xs[idx[i]], xs[idx[j]]) })
-	ranks := make([]float64, n)
-	var tie float64
-	for i := 0; i < n; {
-		j := i + 1
-		for j < n && xs[idx[j]] == xs[idx[i]] {
-			j++
-		}
-		r := float64(i+j+1) / 2 // mean of ranks i+1 .. j
-		for k := i; k < j; k++ {
-			ranks[idx[k]] = r
-		}
-		t := float64(j - i)
-		tie += t*t*t - t
-		i = j
-	}
-	return ranks, tie
+	return ranks, ties
 }
 
 // kendallW is Kendall's coefficient of concordance W with the correction
@@ -175,7 +92,7 @@ func kendallW(ranks [][]float64, ties []float64) (w float64, ok bool) {
 			R[i] += r
 		}
 	}
-	mr := meanOf(R)
+	mr := metrics.Mean(R)
 	var s float64
 	for _, v := range R {
 		s += (v - mr) * (v - mr)

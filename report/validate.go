@@ -4,6 +4,8 @@ import (
 	"encoding/base64"
 	"fmt"
 	"math"
+
+	"areasweep/extent/vocab"
 )
 
 // MaxPreviewSide bounds each side of the preview a results file may hold;
@@ -108,11 +110,11 @@ func Validate(r *Results) error {
 	}
 	for i, p := range r.Points {
 		at := fmt.Sprintf("points[%d] (line %d)", i, p.ID)
-		if p.Role != "train" && p.Role != "test" {
+		if p.Role != string(vocab.RoleTrain) && p.Role != string(vocab.RoleTest) {
 			v.fail(at+".role", "%q is not train or test", p.Role)
 		}
 		switch p.Status {
-		case PointScored, PointOutsideRaster, PointNoData, PointThinned:
+		case vocab.PointScored, vocab.PointOutsideRaster, vocab.PointNoData, vocab.PointThinned:
 		default:
 			v.fail(at+".status", "%q is not scored, outside_raster, nodata or thinned", p.Status)
 		}

@@ -56,7 +56,7 @@ func (a *analysis) difference(m MetricInfo, kind, model, ext, other, otherExt st
 		d.TestPoints = sc.TestPoints
 		d.Value, _, _, _, _, _ = metricValue(m, sc)
 	}
-	if m.Kind == "area_fraction" {
+	if m.Kind == MetricAreaFraction {
 		osc := a.score(other, otherExt)
 		if sc == nil || osc == nil {
 			return d
@@ -87,7 +87,7 @@ func (a *analysis) difference(m MetricInfo, kind, model, ext, other, otherExt st
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
-	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: "undetermined",
+	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: JudgementUndetermined,
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
 	if bs == nil {
@@ -140,11 +140,11 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	}
 	switch {
 	case outside > 0:
-		mv.Verdict = "extent-sensitive"
+		mv.Verdict = JudgementSensitive
 		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extents the difference from %s lies wholly beyond our tolerance of %s; the largest is %s.%s",
 			name, outside, len(mv.Diffs), a.base, tol, largest, notOn)
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
-		mv.Verdict = "robust"
+		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s lies within %s with its 95%% interval; the largest is %s.",
 			name, a.base, tol, largest)
 	default:
@@ -165,7 +165,7 @@ func allInside(ds []ExtentDifference) bool {
 
 // undefinedWhy names why a partial ROC ratio is undefined on s.
 func undefinedWhy(m MetricInfo, s *Score) string {
-	if m.Kind != "partial_roc" {
+	if m.Kind != MetricPartialROC {
 		return ""
 	}
 	for _, p := range s.PartialROC {
@@ -185,13 +185,13 @@ func undefinedWhy(m MetricInfo, s *Score) string {
 
 // verdictFor sums up the model verdicts of metric m.
 func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
-	v := Verdict{Metric: m.Key, Label: m.Label, Tolerance: m.Tolerance, Verdict: "undetermined",
+	v := Verdict{Metric: m.Key, Label: m.Label, Tolerance: m.Tolerance, Verdict: JudgementUndetermined,
 		Sensitive: []string{}, Robust: []string{}, Undetermined: []string{}}
 	for _, mv := range mvs {
 		switch mv.Verdict {
-		case "extent-sensitive":
+		case JudgementSensitive:
 			v.Sensitive = append(v.Sensitive, mv.Model)
-		case "robust":
+		case JudgementRobust:
 			v.Robust = append(v.Robust, mv.Model)
 		default:
 			v.Undetermined = append(v.Undetermined, mv.Model)
@@ -199,9 +199,9 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	}
 	switch {
 	case len(v.Sensitive) > 0:
-		v.Verdict = "extent-sensitive"
+		v.Verdict = JudgementSensitive
 	case len(v.Robust) > 0 && len(v.Undetermined) == 0:
-		v.Verdict = "robust"
+		v.Verdict = JudgementRobust
 	}
 	var parts []string
 	if len(v.Sensitive) > 0 {
@@ -225,7 +225,7 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 // difference would count as "beyond noise".
 func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	var out []ModelRanking
-	if m.Kind == "area_fraction" {
+	if m.Kind == MetricAreaFraction {
 		return out
 	}
 	for i, ma := range a.models {

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+
+	"areasweep/report/outfile"
 )
 
 // Write writes report.html, methods.md and figures/*.svg, *.pdf and *.png
@@ -38,39 +40,11 @@ func Write(dir string, r *Results) error {
 	return writeAtomic(filepath.Join(dir, "report.html"), page)
 }
 
-// writeAtomic writes data to path through a temporary file in the same
-// folder, then renames it over path, so readers never see half a file.
+// writeAtomic writes data to path whole or not at all (package outfile),
+// with the package prefix on its error.
 func writeAtomic(path string, data []byte) error {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	tmp, err := os.CreateTemp(dir, "."+base+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("report: write %s: %w", path, err)
-	}
-	name := tmp.Name()
-	fail := func(err error) error {
-		tmp.Close()
-		os.Remove(name)
-		return fmt.Errorf("report: write %s: %w", path, err)
-	}
-	if _, err := tmp.Write(data); err != nil {
-		return fail(err)
-	}
-	if err := tmp.Sync(); err != nil {
-		return fail(err)
-	}
-	if err := tmp.Chmod(0o644); err != nil {
-		return fail(err)
-	}
-	if err := tmp.Close(); err != nil {
-		os.Remove(name)
-		return fmt.Errorf("report: write %s: %w", path, err)
-	}
-	if err := os.Rename(name, path); err != nil {
-		os.Remove(name)
-		return fmt.Errorf("report: write %s: %w", path, err)
+	if err := outfile.Write(path, data, 0o666); err != nil {
+		return fmt.Errorf("report: %w", err)
 	}
 	return nil
 }

@@ -15,14 +15,15 @@ import (
 	"time"
 
 	"github.com/spf13/cobra"
-	"github.com/spf13/pflag"
 
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
 	"areasweep/report"
+	"areasweep/report/outfile"
 )
 
 // BatchOptions runs every study of a study table.
@@ -136,8 +137,8 @@ func (o *BatchOptions) validate() error {
 	switch {
 	case o.Out == "":
 		return errors.New("--out is missing; name the folder that receives one folder per study and the summary")
-	case o.Jobs < 1 || o.Jobs > maxWorkers:
-		return fmt.Errorf("--jobs is %d; give 1 to %d", o.Jobs, maxWorkers)
+	case o.Jobs < 1 || o.Jobs > settings.MaxWorkers:
+		return fmt.Errorf("--jobs is %d; give 1 to %d", o.Jobs, settings.MaxWorkers)
 	case o.Memory < 0:
 		return fmt.Errorf("--memory is negative")
 	case o.SummaryOnly && len(o.Only) > 0:
@@ -210,7 +211,7 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 			continue
 		}
 		ro := defaultRunOptions()
-		ro.applyStudy(row.Study, pflag.NewFlagSet("row", pflag.ContinueOnError))
+		row.Study.Apply(&ro.Values, func(string) bool { return false }) // no flag: the row and the shared block say all
 		ro.Out = filepath.Join(out, row.ID)
 		if err := ro.validate(); err != nil {
 			bad(flagColumn(err.Error()), err)
@@ -404,7 +405,7 @@ func recordFailure(out, id string, k int, err error) {
 		return
 	}
 	if os.MkdirAll(filepath.Dir(p), 0o755) == nil {
-		os.WriteFile(p, []byte(oneLine(err.Error())+"\n"), 0o644)
+		outfile.Write(p, []byte(oneLine(err.Error())+"\n"), 0o666)
 	}
 }
 

@@ -15,6 +15,7 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
 )
 
@@ -46,8 +47,8 @@ func (o *SlurmOptions) validate() error {
 		return errors.New("--wait needs --submit")
 	case !o.Enabled && (o.Partition != "" || o.TimeLimit != "" || o.MaxParallel != 0):
 		return errors.New("--partition, --time and --max-parallel need --slurm")
-	case o.CPUs < 1 || o.CPUs > maxWorkers:
-		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, maxWorkers)
+	case o.CPUs < 1 || o.CPUs > settings.MaxWorkers:
+		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, settings.MaxWorkers)
 	case o.MaxParallel < 0:
 		return fmt.Errorf("--max-parallel is %d; give 0 (no limit) or more", o.MaxParallel)
 	}

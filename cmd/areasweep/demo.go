@@ -10,6 +10,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/scenario"
+	"areasweep/cmd/internal/settings"
 )
 
 // DemoOptions runs the built-in demo.
@@ -44,7 +45,7 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 	f.StringVar(&opts.Out, "out", opts.Out, "output directory `DIR`")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files (inputs/ included) in an existing output directory")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
-	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores)", maxWorkers))
+	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores)", settings.MaxWorkers))
 	f.Uint64Var(&opts.Seed, "scenario-seed", opts.Seed, "seed `N` of the invented landscape")
 	return cmd
 }
@@ -53,8 +54,8 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 // generated inputs are removed with it on every exit path (an error, a
 // signal, a crash) and arrive in --out/inputs with the results.
 func demoRun(o *DemoOptions) error {
-	if o.Workers < 0 || o.Workers > maxWorkers {
-		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers))
+	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
+		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers))
 	}
 	d, err := outdir.Open(o.Out, o.Force, nil)
 	if err != nil {

@@ -2,12 +2,14 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"path/filepath"
 
 	"github.com/spf13/cobra"
 
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 )
 
 // MergeOptions merges the partial files of a run's shards.
@@ -34,7 +36,12 @@ results.json and scores.csv are byte for byte those of a single run.`,
 		Example: `  areasweep run --study study.yaml --shard 1/2 --out shards/1
   areasweep run --study study.yaml --shard 2/2 --out shards/2
   areasweep merge --out results shards/1 shards/2`,
-		Args: cobra.MinimumNArgs(1),
+		Args: func(c *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return errors.New("no partial file given: name the shards' .aspf files or the folders holding them (see 'areasweep merge --help')")
+			}
+			return nil
+		},
 		RunE: func(c *cobra.Command, args []string) error {
 			opts.Files = args
 			if err := checkWorkers(opts.Workers); err != nil {
@@ -50,7 +57,7 @@ results.json and scores.csv are byte for byte those of a single run.`,
 	f.StringVar(&opts.Out, "out", "areasweep-out", "output directory `DIR` (an existing non-empty one needs --force)")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
-	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", maxWorkers))
+	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", settings.MaxWorkers))
 	return cmd
 }
 

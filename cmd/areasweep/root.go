@@ -68,7 +68,7 @@ func setRunLog(b *pipeline.Log) {
 // removes the run's staging folder and exits with 128+N; a panic is
 // recovered, reported in one line and its trace written to a run.log.
 func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
-	extent.Register()
+	extent.Configure()
 	gdalmsg.Install()
 	sigs := make(chan os.Signal, 1)
 	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
@@ -167,7 +167,7 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return fault.BadInput(fmt.Errorf("%v (see 'areasweep %s --help')", err, c.Name()))
+		return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
 	})
 	root.AddCommand(
 		newRunCmd(streams, nil),

@@ -16,13 +16,14 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 	"areasweep/extent"
 	"areasweep/report"
 )
 
 // RunOptions holds everything a run needs: the streams, the study file
-// and the pipeline's settings. Flags and the study file fill it; flags
-// given on the command line win over the file.
+// and the pipeline's options. Flags (bound from settings.Table) and the
+// study file fill it; flags given on the command line win over the file.
 type RunOptions struct {
 	IO    *IO
 	Study string
@@ -31,42 +32,13 @@ type RunOptions struct {
 	pipeline.Options
 }
 
-// Bounds on settings, so that a typo cannot ask for hours or for more
-// memory than a machine has. Each is our own choice, far above real use.
-const (
-	// maxIterations bounds the bootstrap.
-	maxIterations = 1_000_000
-	// maxThresholds bounds --thresholds (each is an exact layout value and
-	// a row per model and extent).
-	maxThresholds = 1000
-	// maxE bounds --e (one partial ROC bootstrap per value).
-	maxE = 100
-	// maxBuffers bounds each buffer list; the family holds at most
-	// extent.MaxMembers members anyway.
-	maxBuffers = extent.MaxMembers
-	// maxWorkers bounds --workers: more goroutines than this only add
-	// accumulators to merge.
-	maxWorkers = 256
-)
+// maxBuffers bounds each buffer list (our choice); the family holds at
+// most extent.MaxMembers members anyway.
+const maxBuffers = extent.MaxMembers
 
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
-	return RunOptions{Options: pipeline.Options{
-		EcoregionMinPoints: 1,
-		RegionBuffers:      []float64{-50, 50, 100, 250, 500},
-		PointBuffers:       []float64{50, 100, 200},
-		HullBuffers:        []float64{0, 100},
-		E:                  []float64{0.05},
-		Iterations:         1000,
-		Fraction:           0.5,
-		Seed:               1,
-		Out:                "areasweep-out",
-
-		ToleranceAUC:        report.DefaultToleranceAUC,
-		TolerancePartialROC: report.DefaultTolerancePartialROC,
-		ToleranceOmission:   report.DefaultToleranceOmission,
-		ToleranceBoyce:      report.DefaultToleranceBoyce,
-	}}
+	return RunOptions{Options: pipeline.Options{Values: settings.Defaults()}}
 }
 
 const runExample = `  # everything from flags (negative buffer distances need the = form)
@@ -177,52 +149,41 @@ func floatListVar(fs *pflag.FlagSet, p *[]float64, name string, value []float64,
 	fs.Var(&floatList{p: p, name: name}, name, usage)
 }
 
-// bindRunFlags binds the flags of run. For extents (scoring false) the
-// scoring flags are accepted but hidden from its help, which shows only the
-// flags that change the family or the files it writes.
+// bindRunFlags binds the flags of run.
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) }
 
+// bindSweepFlags binds --study and one flag per row of settings.Table,
+// with the row's type, help and the default already in o. For extents
+// (scoring false) the scoring settings are accepted but hidden from its
+// help, which shows only the flags that change the family or the files it
+// writes.
 func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
 	f.StringVar(&o.Study, "study", "", "study `FILE` (YAML) whose keys are these flag names")
-	f.StringArrayVar(&o.Models, "model", nil, "model raster as `NAME=PATH` (repeatable; all on one grid)")
-	f.StringArrayVar(&o.Nulls, "null", nil, "raster scored as a null, not a model, as `NAME=PATH` (repeatable; same grid): shown beside the models, never ranked")
-	f.BoolVar(&o.NoDistanceNull, "no-distance-null", false, "skip the distance-only null (minus the distance to the nearest training point) and the sorting-bias ratios")
-	f.StringVar(&o.Occurrences, "occurrences", "", "CSV `FILE` of occurrences: longitude, latitude and role (train/test) columns")
-	f.StringVar(&o.OccurrencesCRS, "occurrences-crs", "", "`CRS` of the occurrence coordinates, e.g. EPSG:3035 (default WGS84 lon/lat)")
-	f.StringVar(&o.Region, "region", "", "`FILE` of base study region polygons (GeoPackage, Shapefile, GeoJSON, any OGR format)")
-	f.StringVar(&o.Ecoregions, "ecoregions", "", "optional ecoregion/unit polygon layer `FILE`")
-	f.StringVar(&o.EcoregionField, "ecoregion-field", "", "id field `NAME` of the ecoregion layer")
-	f.IntVar(&o.EcoregionMinPoints, "ecoregion-min-points", o.EcoregionMinPoints, "units with at least `K` training points are occupied")
-	f.BoolVar(&o.EcoregionClip, "ecoregion-clip", false, "also add the ecoregion extents clipped to the base region")
-	f.StringArrayVar(&o.Extra, "extra", nil, "extra extent polygons as `NAME=PATH` (repeatable)")
-	floatListVar(f, &o.RegionBuffers, "region-buffers", o.RegionBuffers, "geodesic buffers of the base region in km, comma-separated; negative shrinks (write --region-buffers=-50,100)")
-	floatListVar(f, &o.PointBuffers, "point-buffers", o.PointBuffers, "radii in km of discs around the training points, comma-separated")
-	f.BoolVar(&o.PointBuffersAll, "point-buffers-all", false, "draw point buffers around all points, not only training points")
-	floatListVar(f, &o.HullBuffers, "hull-buffers", o.HullBuffers, "buffers in km of the training points' convex hull, comma-separated (0 = the hull itself)")
-	{
-		floatListVar(f, &o.E, "e", o.E, "allowable omission E for partial ROC, each in (0,1), comma-separated")
-		f.IntVar(&o.Iterations, "iterations", o.Iterations, fmt.Sprintf("resamples `B`: of the published partial ROC bootstrap and of the paired full-size resamples (1 to %d)", maxIterations))
-		f.Float64Var(&o.Fraction, "fraction", o.Fraction, "share `F` of test points drawn (with replacement) in each bootstrap iteration, in (0,1]")
-		floatListVar(f, &o.Thresholds, "thresholds", nil, fmt.Sprintf("fixed suitability thresholds to test besides the training-presence ones, comma-separated (at most %d)", maxThresholds))
-		f.Uint64Var(&o.Seed, "seed", o.Seed, "random seed `N` of the bootstrap")
-		f.IntVar(&o.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores); results do not depend on it", maxWorkers))
-		f.Float64Var(&o.ToleranceAUC, "tolerance-auc", o.ToleranceAUC, "AUC difference `D` from the base extent you treat as negligible (our default)")
-		f.Float64Var(&o.TolerancePartialROC, "tolerance-partial-roc", o.TolerancePartialROC, "partial ROC ratio difference `D` you treat as negligible (our default)")
-		f.Float64Var(&o.ToleranceOmission, "tolerance-omission", o.ToleranceOmission, "omission-rate and predicted-area difference `D` you treat as negligible (our default)")
-		f.Float64Var(&o.ToleranceBoyce, "tolerance-boyce", o.ToleranceBoyce, "Boyce index difference `D` you treat as negligible (our default)")
-	}
-	if !scoring {
-		// Accepted (a run's command line works for extents) but not shown:
-		// extents scores nothing.
-		for _, n := range []string{"e", "iterations", "fraction", "thresholds", "seed", "workers", "tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce", "null", "no-distance-null"} {
-			f.MarkHidden(n)
+	for _, s := range settings.Table {
+		switch p := s.Field(&o.Values).(type) {
+		case *string:
+			f.StringVar(p, s.Name, *p, s.Usage)
+		case *[]string:
+			f.StringArrayVar(p, s.Name, *p, s.Usage)
+		case *bool:
+			f.BoolVar(p, s.Name, *p, s.Usage)
+		case *int:
+			f.IntVar(p, s.Name, *p, s.Usage)
+		case *uint64:
+			f.Uint64Var(p, s.Name, *p, s.Usage)
+		case *float64:
+			f.Float64Var(p, s.Name, *p, s.Usage)
+		case *[]float64:
+			floatListVar(f, p, s.Name, *p, s.Usage)
+		default:
+			panic(fmt.Sprintf("setting %s: no flag for a %T", s.Name, p))
+		}
+		if s.Scoring && !scoring {
+			// Accepted (a run's command line works for extents) but not
+			// shown: extents scores nothing.
+			f.MarkHidden(s.Name)
 		}
 	}
-	f.StringVar(&o.Out, "out", o.Out, "output directory `DIR` (an existing non-empty one needs --force)")
-	f.BoolVar(&o.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
-	f.BoolVar(&o.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
-	f.BoolVar(&o.NoThin, "no-thin", false, "keep several presences of one role in one cell (default: one per cell)")
-	f.BoolVar(&o.MembershipTIFF, "membership-tif", false, "also write extents.tif, one band per extent")
 }
 
 // resolve merges the study file under the flags and validates the result.
@@ -232,59 +193,9 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 		if err != nil {
 			return err
 		}
-		o.applyStudy(st, f)
+		st.Apply(&o.Values, f.Changed)
 	}
 	return o.validate()
-}
-
-// applyStudy copies every setting of st whose flag was not given.
-func (o *RunOptions) applyStudy(st *inputs.Study, f *pflag.FlagSet) {
-	set := func(name string) bool { return !f.Changed(name) }
-	slice := func(name string, dst *[]string, v []string) {
-		if v != nil && set(name) {
-			*dst = v
-		}
-	}
-	slice("model", &o.Models, st.Model)
-	slice("null", &o.Nulls, st.Null)
-	slice("extra", &o.Extra, st.Extra)
-	fromStudy(f, "occurrences", &o.Occurrences, st.Occurrences)
-	fromStudy(f, "occurrences-crs", &o.OccurrencesCRS, st.OccurrencesCRS)
-	fromStudy(f, "region", &o.Region, st.Region)
-	fromStudy(f, "ecoregions", &o.Ecoregions, st.Ecoregions)
-	fromStudy(f, "ecoregion-field", &o.EcoregionField, st.EcoregionField)
-	fromStudy(f, "out", &o.Out, st.Out)
-	fromStudy(f, "ecoregion-min-points", &o.EcoregionMinPoints, st.EcoregionMinPoints)
-	fromStudy(f, "ecoregion-clip", &o.EcoregionClip, st.EcoregionClip)
-	fromStudy(f, "point-buffers-all", &o.PointBuffersAll, st.PointBuffersAll)
-	fromStudy(f, "no-thin", &o.NoThin, st.NoThin)
-	fromStudy(f, "membership-tif", &o.MembershipTIFF, st.MembershipTIFF)
-	fromStudy(f, "no-distance-null", &o.NoDistanceNull, st.NoDistanceNull)
-	list := func(name string, dst *[]float64, v []float64) {
-		if v != nil && set(name) {
-			*dst = v
-		}
-	}
-	list("region-buffers", &o.RegionBuffers, st.RegionBuffers)
-	list("point-buffers", &o.PointBuffers, st.PointBuffers)
-	list("hull-buffers", &o.HullBuffers, st.HullBuffers)
-	list("e", &o.E, st.E)
-	list("thresholds", &o.Thresholds, st.Thresholds)
-	fromStudy(f, "iterations", &o.Iterations, st.Iterations)
-	fromStudy(f, "fraction", &o.Fraction, st.Fraction)
-	fromStudy(f, "seed", &o.Seed, st.Seed)
-	fromStudy(f, "tolerance-auc", &o.ToleranceAUC, st.ToleranceAUC)
-	fromStudy(f, "tolerance-partial-roc", &o.TolerancePartialROC, st.TolerancePartialROC)
-	fromStudy(f, "tolerance-omission", &o.ToleranceOmission, st.ToleranceOmission)
-	fromStudy(f, "tolerance-boyce", &o.ToleranceBoyce, st.ToleranceBoyce)
-}
-
-// fromStudy sets *dst to the study file's value v when the file gives one
-// (v != nil) and the flag name was not given on the command line.
-func fromStudy[T any](f *pflag.FlagSet, name string, dst *T, v *T) {
-	if v != nil && !f.Changed(name) {
-		*dst = *v
-	}
 }
 
 // validate checks the settings that need no file access.
@@ -341,8 +252,8 @@ func (o *RunOptions) validate() error {
 	if len(o.E) == 0 {
 		return fmt.Errorf("--e is empty; give at least one allowable omission, e.g. 0.05")
 	}
-	if o.Iterations < 1 || o.Iterations > maxIterations {
-		return fmt.Errorf("--iterations is %d; it must be between 1 and %d", o.Iterations, maxIterations)
+	if o.Iterations < 1 || o.Iterations > settings.MaxIterations {
+		return fmt.Errorf("--iterations is %d; it must be between 1 and %d", o.Iterations, settings.MaxIterations)
 	}
 	if !(o.Fraction > 0 && o.Fraction <= 1) {
 		return fmt.Errorf("--fraction %g is outside (0,1]", o.Fraction)
@@ -363,7 +274,7 @@ func (o *RunOptions) validate() error {
 		max  int
 		dups bool
 	}{{"region-buffers", o.RegionBuffers, maxBuffers, true}, {"point-buffers", o.PointBuffers, maxBuffers, true},
-		{"hull-buffers", o.HullBuffers, maxBuffers, true}, {"e", o.E, maxE, false}, {"thresholds", o.Thresholds, maxThresholds, false}} {
+		{"hull-buffers", o.HullBuffers, maxBuffers, true}, {"e", o.E, settings.MaxE, false}, {"thresholds", o.Thresholds, settings.MaxThresholds, false}} {
 		if len(lst.v) > lst.max {
 			return fmt.Errorf("--%s has %d values; at most %d are allowed", lst.name, len(lst.v), lst.max)
 		}
@@ -378,8 +289,8 @@ func (o *RunOptions) validate() error {
 			}
 		}
 	}
-	if o.Workers < 0 || o.Workers > maxWorkers {
-		return fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, maxWorkers)
+	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
+		return fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers)
 	}
 	for _, d := range o.PointBuffers {
 		if d <= 0 {

@@ -170,7 +170,7 @@ func TestOutputsHonourUmask(t *testing.T) {
 	if _, se, code := runBin(t, s.args(out)...); code != 0 {
 		t.Fatalf("exit %d: %s", code, se)
 	}
-	for path, want := range map[string]os.FileMode{out: 0o750, filepath.Dir(out): 0o750, filepath.Join(out, "figures"): 0o750, filepath.Join(out, "results.json"): 0o640} {
+	for path, want := range map[string]os.FileMode{out: 0o750, filepath.Dir(out): 0o750, filepath.Join(out, "figures"): 0o750, filepath.Join(out, "results.json"): 0o640, filepath.Join(out, "report.html"): 0o640, filepath.Join(out, "figures", "metrics_vs_area.svg"): 0o640} {
 		st, err := os.Stat(path)
 		if err != nil {
 			t.Fatal(err)

@@ -9,6 +9,7 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 )
 
 // maxShards bounds N in --shard I/N (our choice: far above any cluster
@@ -59,8 +60,8 @@ func shardSweep(o *RunOptions) error {
 
 // checkWorkers checks a --workers value of a command without RunOptions.
 func checkWorkers(n int) error {
-	if n < 0 || n > maxWorkers {
-		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", n, maxWorkers))
+	if n < 0 || n > settings.MaxWorkers {
+		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", n, settings.MaxWorkers))
 	}
 	return nil
 }

@@ -3,17 +3,37 @@ package main
 import (
 	"bytes"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 )
 
-// shardArgs are the small study's run arguments with a raster null, so
-// that every kind of pass (models, a raster null, the distance-only null)
-// is split.
-func (s *smallStudy) shardArgs(out string, extra ...string) []string {
-	return s.args(out, append([]string{"--null", "flat=" + s.model2}, extra...)...)
+// shardArgs are the small study's run arguments with a raster null whose
+// no-data cells differ from the first model's (holes where the model has
+// data, data in the model's no-data corner), so that every kind of pass
+// (models, a raster null, the distance-only null) is split and the clip to
+// the first model's valid cells matters for a later pass.
+func (s *smallStudy) shardArgs(t *testing.T, out string, extra ...string) []string {
+	t.Helper()
+	holes := filepath.Join(s.dir, "holes.tif")
+	if _, err := os.Stat(holes); err != nil {
+		v := make([]float64, len(s.vals))
+		for i := range v {
+			r, c := i/s.w, i%s.w
+			switch {
+			case c >= 44 && r >= 28:
+				v[i] = float64(float32(0.01 * float64(c-r)))
+			case r >= 9 && r < 14 && c >= 20 && c < 31:
+				v[i] = math.NaN()
+			default:
+				v[i] = float64(float32(1 - s.vals[i]))
+			}
+		}
+		writeRaster(t, holes, s.w, s.h, s.gt, v, true)
+	}
+	return s.args(out, append([]string{"--null", "holes=" + holes}, extra...)...)
 }
 
 // runShards runs shards 1..n of the small study, shard i into dir/shard-i
@@ -23,7 +43,7 @@ func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) 
 	var outs []string
 	for i := 1; i <= n; i++ {
 		out := filepath.Join(dir, fmt.Sprintf("shard-%d", i))
-		args := s.shardArgs(out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
+		args := s.shardArgs(t, out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
 		if _, se, code := runBin(t, args...); code != 0 {
 			t.Fatalf("shard %d/%d: exit %d: %s", i, n, code, se)
 		}
@@ -43,7 +63,7 @@ func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) 
 func TestShardsMergeToSingleRun(t *testing.T) {
 	s := newSmallStudy(t)
 	single := filepath.Join(s.dir, "single")
-	if _, se, code := runBin(t, s.shardArgs(single)...); code != 0 {
+	if _, se, code := runBin(t, s.shardArgs(t, single)...); code != 0 {
 		t.Fatalf("single run: exit %d: %s", code, se)
 	}
 	same := []string{"results.json", "scores.csv", "report.html", "methods.md", "extents.gpkg", "extents.tif", "omitted_points.gpkg"}
@@ -154,4 +174,46 @@ func TestMergeRefuses(t *testing.T) {
 			t.Errorf("%s was created", out)
 		}
 	})
+}
+
+// TestShardsShareAFolder: shards run one after another into one folder
+// need --force from the second on, and --force then replaces only the
+// shard's own two files: another shard's files and a whole run's outputs
+// in the folder stay as they were. merge takes the folder.
+func TestShardsShareAFolder(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := filepath.Join(s.dir, "shared")
+	shard := func(i int, extra ...string) (string, int) {
+		_, se, code := runBin(t, s.shardArgs(t, dir, append([]string{"--shard", fmt.Sprintf("%d/2", i)}, extra...)...)...)
+		return se, code
+	}
+	if se, code := shard(1); code != 0 {
+		t.Fatalf("shard 1: exit %d: %s", code, se)
+	}
+	if se, code := shard(2); code != 2 || !strings.Contains(se, "--force") {
+		t.Fatalf("shard 2 into a non-empty folder without --force: exit %d: %s", code, se)
+	}
+	if se, code := shard(2, "--force"); code != 0 {
+		t.Fatalf("shard 2 --force: exit %d: %s", code, se)
+	}
+	keep := filepath.Join(dir, "results.json")
+	os.WriteFile(keep, []byte("a whole run's results\n"), 0o644)
+	other, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf"))
+	if se, code := shard(1, "--force"); code != 0 {
+		t.Fatalf("shard 1 again --force: exit %d: %s", code, se)
+	}
+	if b, err := os.ReadFile(keep); err != nil || string(b) != "a whole run's results\n" {
+		t.Errorf("results.json in the shards' folder was replaced or removed by a shard (%v)", err)
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "shard-2-of-2.aspf")); len(other) == 0 || !bytes.Equal(b, other) {
+		t.Error("shard 1 --force changed shard 2's partial file")
+	}
+	for _, f := range []string{"shard-1-of-2.aspf", "shard-1-of-2.log", "shard-2-of-2.log"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("%s missing: %v", f, err)
+		}
+	}
+	if _, se, code := runBin(t, "merge", "--quiet", "--out", filepath.Join(s.dir, "merged"), dir); code != 0 {
+		t.Fatalf("merge of the folder: exit %d: %s", code, se)
+	}
 }

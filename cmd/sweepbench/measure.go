@@ -14,6 +14,8 @@ import (
 	"sync"
 	"time"
 
+	"areasweep/extent"
+
 	"github.com/airbusgeo/godal"
 )
 
@@ -37,7 +39,7 @@ type row struct {
 }
 
 func (b *bench) runAll(dir string, cells, extents []float64) error {
-	godal.RegisterAll()
+	extent.Configure()
 	var rows []row
 	fmt.Printf("machine: %d cores (GOMAXPROCS %d), %s\n", runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOARCH)
 	fmt.Printf("%-12s %-8s %-9s %-9s %-7s %-11s %-7s %-10s %-12s\n", "cells", "extents", "a bare s", "b run s", "b/a", "c baseline s", "c/b", "b RSS MiB", "b cells/s")
@@ -178,7 +180,7 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	cmd.Stderr = &stderr
 	start := time.Now()
 	if err := cmd.Start(); err != nil {
-		return 0, 0, fmt.Errorf("%s: %v", b.bin, err)
+		return 0, 0, fmt.Errorf("%s: %w", b.bin, err)
 	}
 	// The peak RSS is read from /proc while the run lives: the rusage of
 	// a child started from this (large) process would report this
@@ -206,7 +208,7 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	close(done)
 	rss := <-peak
 	if err != nil {
-		return 0, 0, fmt.Errorf("%s %s: %v\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
+		return 0, 0, fmt.Errorf("%s %s: %w\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
 	}
 	return t, rss, nil
 }

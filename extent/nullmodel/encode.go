@@ -30,6 +30,12 @@ const BackgroundEncodingVersion uint16 = 1
 
 const bgMagic = "ASBG"
 
+// maxBackgroundExtents bounds the extents DecodeBackground accepts: the
+// family holds at most 1024 members (extent.MaxMembers), and each extent
+// with data holds a histogram of some 18,000 bins, so a damaged count
+// cannot ask for unbounded memory.
+const maxBackgroundExtents = 1024
+
 // ErrBackgroundEncoding is wrapped by every error of DecodeBackground and
 // Background.Merge.
 var ErrBackgroundEncoding = errors.New("nullmodel: bad sorting-bias background data")
@@ -107,7 +113,7 @@ func DecodeBackground(data []byte) (*Background, error) {
 		return nil, bad("histogram of %d bins, this areasweep uses %d", h, histLen)
 	}
 	count := u32()
-	if uint64(count) > uint64(len(body))/28 {
+	if count > maxBackgroundExtents || uint64(count) > uint64(len(body))/28 {
 		return nil, bad("%d extents do not fit in %d bytes", count, len(body))
 	}
 	b := &Background{ext: make([]bgExtent, count)}

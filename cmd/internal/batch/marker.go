@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"areasweep/cmd/internal/slurm"
+	"areasweep/report/outfile"
 )
 
 // Marker is the content of a completion marker: "key<TAB>value" lines.
@@ -47,23 +48,8 @@ func WriteMarker(dir string, m Marker) error {
 	for _, k := range keys {
 		fmt.Fprintf(&b, "%s\t%s\n", k, m[k])
 	}
-	tmp, err := os.CreateTemp(dir, "."+slurm.MarkerName+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("batch: writing the completion marker in %s: %w", dir, err)
-	}
-	_, err = tmp.WriteString(b.String())
-	if err == nil {
-		err = tmp.Sync()
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), MarkerPath(dir))
-	}
-	if err != nil {
-		os.Remove(tmp.Name())
-		return fmt.Errorf("batch: writing the completion marker in %s: %w", dir, err)
+	if err := outfile.Write(MarkerPath(dir), []byte(b.String()), 0o666); err != nil {
+		return fmt.Errorf("batch: the completion marker in %s: %w", dir, err)
 	}
 	return nil
 }

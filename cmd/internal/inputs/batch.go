@@ -9,7 +9,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"reflect"
 	"regexp"
 	"strings"
 
@@ -395,7 +394,7 @@ func (p *batchParser) parseCSV(data []byte) {
 				line = pe.StartLine + lines
 				err = pe.Err
 			}
-			p.add(line, "", "", fmt.Errorf("%w: %v; quote cells that hold the delimiter or quotes (\"a,b\")", ErrBatchSyntax, err))
+			p.add(line, "", "", fmt.Errorf("%w: %w; quote cells that hold the delimiter or quotes (\"a,b\")", ErrBatchSyntax, err))
 			return
 		}
 		line, _ := r.FieldPos(0)
@@ -549,12 +548,12 @@ func (p *batchParser) finish() {
 // overlay returns a copy of base with every setting present in top laid
 // over it (a list in top replaces base's list as a whole).
 func overlay(base, top *Study) *Study {
-	out := *base
-	ov, tv := reflect.ValueOf(&out).Elem(), reflect.ValueOf(top).Elem()
-	for i := range tv.NumField() {
-		if f := tv.Field(i); !f.IsNil() {
-			ov.Field(i).Set(f)
-		}
+	out := Study{}
+	for k, v := range *base {
+		out[k] = v
+	}
+	for k, v := range *top {
+		out[k] = v
 	}
 	return &out
 }

@@ -49,13 +49,13 @@ func wantBatch(dir string) []BatchStudy {
 	j := func(p string) string { return filepath.Join(dir, p) }
 	return []BatchStudy{
 		{ID: "oak", Study: &Study{
-			Model: []string{"gbm=" + j("oak/gbm.tif"), "glm=/abs/glm.tif"}, Occurrences: ptr(j("oak/points.csv")),
-			Region: ptr(j("oak/region.gpkg")), Iterations: ptr(1000), RegionBuffers: []float64{100, 250}, Seed: ptr(uint64(7)),
+			"model": []string{"gbm=" + j("oak/gbm.tif"), "glm=/abs/glm.tif"}, "occurrences": j("oak/points.csv"),
+			"region": j("oak/region.gpkg"), "iterations": 1000, "region-buffers": []float64{100, 250}, "seed": uint64(7),
 		}},
 		{ID: "lynx", Study: &Study{
-			Model: []string{"gbm=" + j("lynx/gbm.tif")}, Occurrences: ptr(j("lynx/points.csv")),
-			Region: ptr(j("lynx/region.gpkg")), Ecoregions: ptr(j("eco.gpkg")), EcoregionField: ptr("ECO_NAME"),
-			Iterations: ptr(1000), RegionBuffers: []float64{5, 10}, Seed: ptr(uint64(42)),
+			"model": []string{"gbm=" + j("lynx/gbm.tif")}, "occurrences": j("lynx/points.csv"),
+			"region": j("lynx/region.gpkg"), "ecoregions": j("eco.gpkg"), "ecoregion-field": "ECO_NAME",
+			"iterations": 1000, "region-buffers": []float64{5, 10}, "seed": uint64(42),
 		}},
 	}
 }
@@ -87,7 +87,7 @@ func TestBatchCSVAndYAMLAgree(t *testing.T) {
 			}
 			t.Fatalf("%s: studies differ", c.file)
 		}
-		if *b.Shared.Iterations != 1000 || b.Shared.Model != nil {
+		if (*b.Shared)["iterations"] != 1000 || (*b.Shared)["model"] != nil {
 			t.Fatalf("%s: shared %+v", c.file, *b.Shared)
 		}
 	}
@@ -102,7 +102,7 @@ func TestBatchTemplateParses(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(b.Studies) != 2 || b.Studies[1].ID != "lynx" || *b.Studies[1].Study.Ecoregions != "/data/eco.gpkg" {
+	if len(b.Studies) != 2 || b.Studies[1].ID != "lynx" || (*b.Studies[1].Study)["ecoregions"] != "/data/eco.gpkg" {
 		t.Fatalf("template: %+v", b.Studies)
 	}
 }
@@ -113,8 +113,8 @@ func TestBatchSemicolonTable(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := b.Studies[0].Study; got.Model[0] != "gbm=a.tif" || *got.Fraction != 0.5 {
-		t.Fatalf("%+v", *got)
+	if got := *b.Studies[0].Study; got["model"].([]string)[0] != "gbm=a.tif" || got["fraction"] != 0.5 {
+		t.Fatalf("%+v", got)
 	}
 }
 
@@ -249,7 +249,7 @@ func FuzzParseBatch(f *testing.F) {
 					t.Fatalf("accepted id %q", s.ID)
 				}
 				seen[low] = true
-				if len(s.Study.Model) == 0 || s.Study.Occurrences == nil || s.Study.Region == nil || s.Study.Out != nil {
+				if m, _ := (*s.Study)["model"].([]string); len(m) == 0 || (*s.Study)["occurrences"] == nil || (*s.Study)["region"] == nil || (*s.Study)["out"] != nil {
 					t.Fatalf("accepted study %q without model/occurrences/region or with out", s.ID)
 				}
 			}

@@ -33,14 +33,17 @@
 // # Study file
 //
 // A study file is a YAML mapping whose keys are exactly the long flag names
-// of the areasweep command (see StudyKeys). LoadStudy reads it strictly:
-// an unknown or repeated key and a value of the wrong type are errors
-// (*StudyError) naming the file, the line and the key. Relative paths in the
-// file are resolved against the directory holding the study file. A key
-// given with no value (key: or key: ~) counts as absent.
+// of the areasweep command marked Study in settings.Table (see StudyKeys).
+// LoadStudy reads it strictly: an unknown or repeated key and a value of the
+// wrong type are errors (*StudyError) naming the file, the line and the key;
+// each key is decoded by its setting's Kind. Relative paths (the Path and
+// NamedPaths settings) are resolved against the directory holding the
+// study file. A key given with no value (key: or key: ~) counts as absent.
+// study.go decodes; suggest.go finds the key a typo meant.
 //
-// Study.Apply copies the settings into a flag set for every flag not given
-// on the command line, so that command-line flags override the study file.
+// Study.Apply copies the settings into a settings.Values for every flag
+// not given on the command line, so that command-line flags override the
+// study file.
 //
 // # Study table
 //

@@ -208,7 +208,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			if err != nil {
 				var pe *csv.ParseError
 				if errors.As(err, &pe) {
-					return nil, 0, perr(pe.Line, "", fmt.Errorf("%w: %v (at character %d of the line); "+
+					return nil, 0, perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
 				}

@@ -8,59 +8,28 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"regexp"
 	"strconv"
 	"strings"
 
+	"areasweep/cmd/internal/settings"
+
 	"go.yaml.in/yaml/v3"
 )
 
-// Study holds the settings a study file can give. Every field is a pointer
-// or a slice so that "absent" differs from "zero": a nil field was not in
-// the file, a non-nil empty slice was given as an empty list. Keys are
-// exactly the long flag names of the command.
+// Study holds the settings a study file gives, by key (the long flag
+// names of the command, settings.Table): a key that is absent was not in
+// the file, and an empty list was given as an empty list. Values have the
+// Go type of their settings.Kind: string (Text, Path), []string
+// (NamedPaths, "NAME=PATH"), bool, int, uint64, float64 or []float64.
 //
-// Paths (the PATH part of model, null and extra, occurrences, region,
-// ecoregions, out) are already resolved against the study file's directory.
-type Study struct {
-	Model              []string  `yaml:"model"` // "NAME=PATH"
-	Occurrences        *string   `yaml:"occurrences"`
-	OccurrencesCRS     *string   `yaml:"occurrences-crs"`
-	Region             *string   `yaml:"region"`
-	Ecoregions         *string   `yaml:"ecoregions"`
-	EcoregionField     *string   `yaml:"ecoregion-field"`
-	EcoregionMinPoints *int      `yaml:"ecoregion-min-points"`
-	EcoregionClip      *bool     `yaml:"ecoregion-clip"`
-	Extra              []string  `yaml:"extra"` // "NAME=PATH"
-	RegionBuffers      []float64 `yaml:"region-buffers"`
-	PointBuffers       []float64 `yaml:"point-buffers"`
-	PointBuffersAll    *bool     `yaml:"point-buffers-all"`
-	HullBuffers        []float64 `yaml:"hull-buffers"`
-	E                  []float64 `yaml:"e"`
-	Iterations         *int      `yaml:"iterations"`
-	Fraction           *float64  `yaml:"fraction"`
-	Thresholds         []float64 `yaml:"thresholds"`
-	Seed               *uint64   `yaml:"seed"`
-	Out                *string   `yaml:"out"`
-	NoThin             *bool     `yaml:"no-thin"`
-	MembershipTIFF     *bool     `yaml:"membership-tif"`
-	Null               []string  `yaml:"null"` // "NAME=PATH"
-	NoDistanceNull     *bool     `yaml:"no-distance-null"`
-	// Tolerances of the equivalence verdicts.
-	ToleranceAUC        *float64 `yaml:"tolerance-auc"`
-	TolerancePartialROC *float64 `yaml:"tolerance-partial-roc"`
-	ToleranceOmission   *float64 `yaml:"tolerance-omission"`
-	ToleranceBoyce      *float64 `yaml:"tolerance-boyce"`
-}
+// Paths (Path and the PATH part of NamedPaths) are already resolved
+// against the study file's directory.
+type Study map[string]any
 
-// studyKeys lists the accepted keys in the order of the Study fields.
-var studyKeys = []string{
-	"model", "occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field",
-	"ecoregion-min-points", "ecoregion-clip", "extra", "region-buffers", "point-buffers",
-	"point-buffers-all", "hull-buffers", "e", "iterations", "fraction", "thresholds", "seed",
-	"out", "no-thin", "membership-tif", "null", "no-distance-null",
-	"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce",
-}
+// studyKeys lists the accepted keys in table order.
+var studyKeys = settings.StudyKeys()
 
 // StudyKeys returns the keys a study file may contain, which are also the
 // long flag names they stand for, in a fixed order.
@@ -247,69 +216,52 @@ func kindName(n *yaml.Node) string {
 	}
 }
 
-// set decodes value node v for key into the study.
+// set decodes value node v for key into the study, by the key's kind in
+// settings.Table; paths are resolved against dir.
 func (s *Study) set(key string, v *yaml.Node, dir string) error {
-	var err error
-	switch key {
-	case "model":
-		s.Model, err = namedPaths(key, v, dir)
-	case "null":
-		s.Null, err = namedPaths(key, v, dir)
-	case "no-distance-null":
-		s.NoDistanceNull, err = boolValue(key, v)
-	case "extra":
-		s.Extra, err = namedPaths(key, v, dir)
-	case "occurrences":
-		s.Occurrences, err = pathValue(key, v, dir)
-	case "region":
-		s.Region, err = pathValue(key, v, dir)
-	case "ecoregions":
-		s.Ecoregions, err = pathValue(key, v, dir)
-	case "out":
-		s.Out, err = pathValue(key, v, dir)
-	case "occurrences-crs":
-		s.OccurrencesCRS, err = stringValue(key, v)
-	case "ecoregion-field":
-		s.EcoregionField, err = stringValue(key, v)
-	case "ecoregion-min-points":
-		s.EcoregionMinPoints, err = intValue(key, v)
-	case "iterations":
-		s.Iterations, err = intValue(key, v)
-	case "ecoregion-clip":
-		s.EcoregionClip, err = boolValue(key, v)
-	case "point-buffers-all":
-		s.PointBuffersAll, err = boolValue(key, v)
-	case "no-thin":
-		s.NoThin, err = boolValue(key, v)
-	case "membership-tif":
-		s.MembershipTIFF, err = boolValue(key, v)
-	case "region-buffers":
-		s.RegionBuffers, err = floatList(key, v)
-	case "point-buffers":
-		s.PointBuffers, err = floatList(key, v)
-	case "hull-buffers":
-		s.HullBuffers, err = floatList(key, v)
-	case "e":
-		s.E, err = floatList(key, v)
-	case "thresholds":
-		s.Thresholds, err = floatList(key, v)
-	case "fraction":
-		s.Fraction, err = floatValue(key, v)
-	case "tolerance-auc":
-		s.ToleranceAUC, err = floatValue(key, v)
-	case "tolerance-partial-roc":
-		s.TolerancePartialROC, err = floatValue(key, v)
-	case "tolerance-omission":
-		s.ToleranceOmission, err = floatValue(key, v)
-	case "tolerance-boyce":
-		s.ToleranceBoyce, err = floatValue(key, v)
-	case "seed":
-		s.Seed, err = uintValue(key, v)
-	default:
-		// studyKeys and this switch must agree.
+	row, ok := settings.Lookup(key)
+	if !ok || !row.Study {
+		// studyKeys and the table must agree.
 		panic("inputs: study key without decoder: " + key)
 	}
-	return err
+	var val any
+	var err error
+	switch row.Kind {
+	case settings.Text:
+		val, err = value(stringValue(key, v))
+	case settings.Path:
+		val, err = value(pathValue(key, v, dir))
+	case settings.NamedPaths:
+		val, err = namedPaths(key, v, dir)
+	case settings.Bool:
+		val, err = value(boolValue(key, v))
+	case settings.Int:
+		val, err = value(intValue(key, v))
+	case settings.Uint:
+		val, err = value(uintValue(key, v))
+	case settings.Float:
+		val, err = value(floatValue(key, v))
+	case settings.FloatList:
+		val, err = floatList(key, v)
+	default:
+		panic(fmt.Sprintf("inputs: setting %s has kind %d without decoder", key, row.Kind))
+	}
+	if err != nil {
+		return err
+	}
+	if *s == nil {
+		*s = Study{}
+	}
+	(*s)[key] = val
+	return nil
+}
+
+// value returns *p as a study value.
+func value[T any](p *T, err error) (any, error) {
+	if err != nil {
+		return nil, err
+	}
+	return *p, nil
 }
 
 func badValue(format string, a ...any) error {
@@ -588,182 +540,49 @@ func ParseFloatList(flag, s string) ([]float64, error) {
 	return out, nil
 }
 
-// FlagSetter is the part of a command-line flag set that Study.Apply needs.
-// *pflag.FlagSet (as returned by cobra's Command.Flags) satisfies it.
-type FlagSetter interface {
-	// Changed reports whether the flag was given on the command line.
-	Changed(name string) bool
-	// Set gives the flag a value as if it had been given on the command line.
-	Set(name, value string) error
-}
-
-// Apply copies every setting present in the study into fs, skipping flags
-// already given on the command line, so that command-line flags override
-// the study file. A list flag given on the command line replaces the
-// study's list as a whole. Call it after parsing the command line and
-// before reading the flag values.
-//
-// Values are given to fs.Set in command-line form: NAME=PATH lists (model,
-// extra) with one Set call per item, as for a repeated flag; number lists
-// with one Set call holding "a,b,c" (as ParseFloatList reads; an empty list
-// is ""); numbers in shortest round-trip form; booleans as true/false.
-func (s *Study) Apply(fs FlagSetter) error {
+// Apply copies every setting the study gives into v, except those that
+// changed reports as given on the command line: flags win over the file,
+// and a list flag replaces the file's whole list.
+func (s *Study) Apply(v *settings.Values, changed func(name string) bool) {
 	if s == nil {
-		return nil
+		return
 	}
-	f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-	for _, key := range studyKeys {
-		vals, present := s.flagValues(key, f)
-		if !present || fs.Changed(key) {
+	for _, row := range settings.Table {
+		val, ok := (*s)[row.Name]
+		if !ok || changed(row.Name) {
 			continue
 		}
-		for _, v := range vals {
-			if err := fs.Set(key, v); err != nil {
-				return fmt.Errorf("inputs: study key %q: flag --%s rejected %q: %w", key, key, v, err)
-			}
-		}
+		reflect.ValueOf(row.Field(v)).Elem().Set(reflect.ValueOf(val))
 	}
-	return nil
 }
 
 // flagValues returns the command-line form of the setting key, and whether
-// it is present in the study.
+// it is present in the study: one text per NAME=PATH, "a,b,c" for a number
+// list (f formats each number), true/false, or the number.
 func (s *Study) flagValues(key string, f func(float64) string) ([]string, bool) {
-	str := func(p *string) ([]string, bool) {
-		if p == nil {
-			return nil, false
-		}
-		return []string{*p}, true
+	v, ok := (*s)[key]
+	if !ok {
+		return nil, false
 	}
-	boolean := func(p *bool) ([]string, bool) {
-		if p == nil {
-			return nil, false
-		}
-		return []string{strconv.FormatBool(*p)}, true
-	}
-	integer := func(p *int) ([]string, bool) {
-		if p == nil {
-			return nil, false
-		}
-		return []string{strconv.Itoa(*p)}, true
-	}
-	float := func(p *float64) ([]string, bool) {
-		if p == nil {
-			return nil, false
-		}
-		return []string{f(*p)}, true
-	}
-	list := func(l []float64) ([]string, bool) {
-		if l == nil {
-			return nil, false
-		}
-		parts := make([]string, len(l))
-		for i, v := range l {
-			parts[i] = f(v)
+	switch x := v.(type) {
+	case string:
+		return []string{x}, true
+	case []string:
+		return x, true
+	case bool:
+		return []string{strconv.FormatBool(x)}, true
+	case int:
+		return []string{strconv.Itoa(x)}, true
+	case uint64:
+		return []string{strconv.FormatUint(x, 10)}, true
+	case float64:
+		return []string{f(x)}, true
+	case []float64:
+		parts := make([]string, len(x))
+		for i, n := range x {
+			parts[i] = f(n)
 		}
 		return []string{strings.Join(parts, ",")}, true
 	}
-	switch key {
-	case "model":
-		return s.Model, s.Model != nil
-	case "null":
-		return s.Null, s.Null != nil
-	case "no-distance-null":
-		return boolean(s.NoDistanceNull)
-	case "extra":
-		return s.Extra, s.Extra != nil
-	case "occurrences":
-		return str(s.Occurrences)
-	case "occurrences-crs":
-		return str(s.OccurrencesCRS)
-	case "region":
-		return str(s.Region)
-	case "ecoregions":
-		return str(s.Ecoregions)
-	case "ecoregion-field":
-		return str(s.EcoregionField)
-	case "out":
-		return str(s.Out)
-	case "ecoregion-min-points":
-		return integer(s.EcoregionMinPoints)
-	case "iterations":
-		return integer(s.Iterations)
-	case "ecoregion-clip":
-		return boolean(s.EcoregionClip)
-	case "point-buffers-all":
-		return boolean(s.PointBuffersAll)
-	case "no-thin":
-		return boolean(s.NoThin)
-	case "membership-tif":
-		return boolean(s.MembershipTIFF)
-	case "region-buffers":
-		return list(s.RegionBuffers)
-	case "point-buffers":
-		return list(s.PointBuffers)
-	case "hull-buffers":
-		return list(s.HullBuffers)
-	case "e":
-		return list(s.E)
-	case "thresholds":
-		return list(s.Thresholds)
-	case "fraction":
-		return float(s.Fraction)
-	case "tolerance-auc":
-		return float(s.ToleranceAUC)
-	case "tolerance-partial-roc":
-		return float(s.TolerancePartialROC)
-	case "tolerance-omission":
-		return float(s.ToleranceOmission)
-	case "tolerance-boyce":
-		return float(s.ToleranceBoyce)
-	case "seed":
-		if s.Seed == nil {
-			return nil, false
-		}
-		return []string{strconv.FormatUint(*s.Seed, 10)}, true
-	}
-	panic("inputs: study key without flag form: " + key)
-}
-
-// closestKey suggests the allowed key nearest to k, or "": first ignoring
-// case and reading '_' as '-', then, for keys of 4 or more characters, by
-// edit distance of at most a third of the key's length.
-func closestKey(k string) string {
-	norm := strings.ToLower(strings.ReplaceAll(k, "_", "-"))
-	for _, s := range studyKeys {
-		if s == norm {
-			return s
-		}
-	}
-	if len(norm) < 4 {
-		return ""
-	}
-	best, bestD := "", max(1, len(norm)/3)+1
-	for _, s := range studyKeys {
-		if d := editDistance(norm, s); d < bestD {
-			best, bestD = s, d
-		}
-	}
-	return best
-}
-
-// editDistance is the Levenshtein distance between a and b (bytes).
-func editDistance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			c := prev[j-1]
-			if a[i-1] != b[j-1] {
-				c++
-			}
-			cur[j] = min(c, prev[j]+1, cur[j-1]+1)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
+	panic(fmt.Sprintf("inputs: study key %s holds a %T", key, v))
 }

@@ -9,13 +9,11 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/spf13/cobra"
+	"areasweep/cmd/internal/settings"
 )
 
 // All expected values in this file are by construction: each study file is
 // written in the test and the expected settings are read off it by hand.
-
-func ptr[T any](v T) *T { return &v }
 
 // fullStudy uses every key once, with relative and absolute paths.
 const fullStudy = `# a complete study
@@ -55,34 +53,34 @@ tolerance-boyce: 0.2
 func fullStudyWant(dir string) *Study {
 	j := func(p string) string { return filepath.Join(dir, p) }
 	return &Study{
-		Model:              []string{"gbm=" + j("models/gbm.tif"), "glm=/abs/glm.tif"},
-		Null:               []string{"effort=" + j("effort.tif")},
-		NoDistanceNull:     ptr(false),
-		Occurrences:        ptr(j("occ/points.csv")),
-		OccurrencesCRS:     ptr("EPSG:32633"),
-		Region:             ptr(j("region.gpkg")),
-		Ecoregions:         ptr(j("../shared/ecoregions.gpkg")),
-		EcoregionField:     ptr("ECO_NAME"),
-		EcoregionMinPoints: ptr(3),
-		EcoregionClip:      ptr(true),
-		Extra:              []string{"mask=" + j("masks/mask.gpkg")},
-		RegionBuffers:      []float64{10, 25.5, 50},
-		PointBuffers:       []float64{5},
-		PointBuffersAll:    ptr(false),
-		HullBuffers:        []float64{},
-		E:                  []float64{5, 10},
-		Iterations:         ptr(1000),
-		Fraction:           ptr(0.5),
-		Thresholds:         []float64{0, 0.1},
-		Seed:               ptr(uint64(18446744073709551615)),
-		Out:                ptr(j("results")),
-		NoThin:             ptr(true),
-		MembershipTIFF:     ptr(false),
+		"model":                []string{"gbm=" + j("models/gbm.tif"), "glm=/abs/glm.tif"},
+		"null":                 []string{"effort=" + j("effort.tif")},
+		"no-distance-null":     false,
+		"occurrences":          j("occ/points.csv"),
+		"occurrences-crs":      "EPSG:32633",
+		"region":               j("region.gpkg"),
+		"ecoregions":           j("../shared/ecoregions.gpkg"),
+		"ecoregion-field":      "ECO_NAME",
+		"ecoregion-min-points": 3,
+		"ecoregion-clip":       true,
+		"extra":                []string{"mask=" + j("masks/mask.gpkg")},
+		"region-buffers":       []float64{10, 25.5, 50},
+		"point-buffers":        []float64{5},
+		"point-buffers-all":    false,
+		"hull-buffers":         []float64{},
+		"e":                    []float64{5, 10},
+		"iterations":           1000,
+		"fraction":             0.5,
+		"thresholds":           []float64{0, 0.1},
+		"seed":                 uint64(18446744073709551615),
+		"out":                  j("results"),
+		"no-thin":              true,
+		"membership-tif":       false,
 
-		ToleranceAUC:        ptr(0.03),
-		TolerancePartialROC: ptr(0.1),
-		ToleranceOmission:   ptr(0.04),
-		ToleranceBoyce:      ptr(0.2),
+		"tolerance-auc":         0.03,
+		"tolerance-partial-roc": 0.1,
+		"tolerance-omission":    0.04,
+		"tolerance-boyce":       0.2,
 	}
 }
 
@@ -100,20 +98,20 @@ func TestParseStudy(t *testing.T) {
 		{"null document", "~\n", "/b", &Study{}},
 		{"null values are absent", "iterations:\nregion: ~\nmodel: null\n", "/b", &Study{}},
 		{"model as mapping keeps order", "model:\n  zeta: z.tif\n  alpha: a.tif\n", "/b",
-			&Study{Model: []string{"zeta=/b/z.tif", "alpha=/b/a.tif"}}},
-		{"model as single text", "model: rf=rf.tif\n", "/b", &Study{Model: []string{"rf=/b/rf.tif"}}},
-		{"model spaces around =", "model: [\" rf = rf.tif \"]\n", "/b", &Study{Model: []string{"rf=/b/rf.tif"}}},
-		{"float list as text", "region-buffers: \"10, 20,30\"\n", "/b", &Study{RegionBuffers: []float64{10, 20, 30}}},
-		{"float list as single number", "e: 5\n", "/b", &Study{E: []float64{5}}},
-		{"float list empty text", "thresholds: \"\"\n", "/b", &Study{Thresholds: []float64{}}},
-		{"flow list with negative and exponent", "thresholds: [-1, 1e-3]\n", "/b", &Study{Thresholds: []float64{-1, 0.001}}},
-		{"whole float for int", "iterations: 1e3\n", "/b", &Study{Iterations: ptr(1000)}},
-		{"int for float", "fraction: 1\n", "/b", &Study{Fraction: ptr(1.0)}},
+			&Study{"model": []string{"zeta=/b/z.tif", "alpha=/b/a.tif"}}},
+		{"model as single text", "model: rf=rf.tif\n", "/b", &Study{"model": []string{"rf=/b/rf.tif"}}},
+		{"model spaces around =", "model: [\" rf = rf.tif \"]\n", "/b", &Study{"model": []string{"rf=/b/rf.tif"}}},
+		{"float list as text", "region-buffers: \"10, 20,30\"\n", "/b", &Study{"region-buffers": []float64{10, 20, 30}}},
+		{"float list as single number", "e: 5\n", "/b", &Study{"e": []float64{5}}},
+		{"float list empty text", "thresholds: \"\"\n", "/b", &Study{"thresholds": []float64{}}},
+		{"flow list with negative and exponent", "thresholds: [-1, 1e-3]\n", "/b", &Study{"thresholds": []float64{-1, 0.001}}},
+		{"whole float for int", "iterations: 1e3\n", "/b", &Study{"iterations": 1000}},
+		{"int for float", "fraction: 1\n", "/b", &Study{"fraction": 1.0}},
 		{"url and vsi paths unchanged", "region: https://example.org/r.gpkg\necoregions: /vsizip/e.zip/e.shp\n", "/b",
-			&Study{Region: ptr("https://example.org/r.gpkg"), Ecoregions: ptr("/vsizip/e.zip/e.shp")}},
-		{"anchor and alias", "e: &l [1, 2]\nthresholds: *l\n", "/b", &Study{E: []float64{1, 2}, Thresholds: []float64{1, 2}}},
-		{"numeric text for string key", "ecoregion-field: 12\n", "/b", &Study{EcoregionField: ptr("12")}},
-		{"document start marker", "---\nseed: 0\n", "/b", &Study{Seed: ptr(uint64(0))}},
+			&Study{"region": "https://example.org/r.gpkg", "ecoregions": "/vsizip/e.zip/e.shp"}},
+		{"anchor and alias", "e: &l [1, 2]\nthresholds: *l\n", "/b", &Study{"e": []float64{1, 2}, "thresholds": []float64{1, 2}}},
+		{"numeric text for string key", "ecoregion-field: 12\n", "/b", &Study{"ecoregion-field": "12"}},
+		{"document start marker", "---\nseed: 0\n", "/b", &Study{"seed": uint64(0)}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -128,19 +126,13 @@ func TestParseStudy(t *testing.T) {
 	}
 }
 
-// dump prints the set fields of a study for failure messages.
+// dump prints a study's settings in table order for failure messages.
 func dump(s *Study) string {
 	var b strings.Builder
-	v := reflect.ValueOf(s).Elem()
-	for i := 0; i < v.NumField(); i++ {
-		f := v.Field(i)
-		if f.IsNil() {
-			continue
+	for _, k := range StudyKeys() {
+		if v, ok := (*s)[k]; ok {
+			fmt.Fprintf(&b, "%s=%v ", k, v)
 		}
-		if f.Kind() == reflect.Pointer {
-			f = f.Elem()
-		}
-		fmt.Fprintf(&b, "%s=%v ", v.Type().Field(i).Name, f.Interface())
 	}
 	return b.String()
 }
@@ -263,11 +255,11 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := &Study{
-		Model:       []string{"m=" + filepath.Join(dir, "models", "m.tif")},
-		Occurrences: ptr(abs),
-		Region:      ptr(filepath.Join(sub, "r.gpkg")),
-		Extra:       []string{"x=" + filepath.Join(sub, "x.gpkg")},
-		Out:         ptr(filepath.Join(dir, "out")),
+		"model":       []string{"m=" + filepath.Join(dir, "models", "m.tif")},
+		"occurrences": abs,
+		"region":      filepath.Join(sub, "r.gpkg"),
+		"extra":       []string{"x=" + filepath.Join(sub, "x.gpkg")},
+		"out":         filepath.Join(dir, "out"),
 	}
 	if !reflect.DeepEqual(st, want) {
 		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
@@ -289,24 +281,34 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 	})
 }
 
-// TestStudyKeysMatchStruct checks that the yaml tags of Study are exactly
-// StudyKeys in order, and that every key decodes and has a flag form.
-func TestStudyKeysMatchStruct(t *testing.T) {
-	typ := reflect.TypeOf(Study{})
+// TestStudyKeysMatchTable checks that the study keys are the table's
+// study settings, that the full study file gives every one of them (so
+// each kind decodes) with the Go type of its field, and that StudyKeys
+// returns a copy.
+func TestStudyKeysMatchTable(t *testing.T) {
 	keys := StudyKeys()
-	if typ.NumField() != len(keys) {
-		t.Fatalf("%d fields, %d keys", typ.NumField(), len(keys))
-	}
-	for i, k := range keys {
-		if tag := typ.Field(i).Tag.Get("yaml"); tag != k {
-			t.Errorf("field %s has tag %q, key list has %q", typ.Field(i).Name, tag, k)
-		}
-	}
 	full := fullStudyWant("/b")
+	if len(*full) != len(keys) {
+		t.Fatalf("the full study gives %d keys, the table has %d study keys", len(*full), len(keys))
+	}
+	var v settings.Values
 	for _, k := range keys {
-		if _, ok := full.flagValues(k, func(float64) string { return "" }); !ok {
-			t.Errorf("key %q absent from the full study", k)
+		row, ok := settings.Lookup(k)
+		if !ok || !row.Study {
+			t.Fatalf("key %q is not a study setting of the table", k)
 		}
+		val, ok := (*full)[k]
+		if !ok {
+			t.Errorf("key %q absent from the full study", k)
+			continue
+		}
+		if want := reflect.TypeOf(row.Field(&v)).Elem(); reflect.TypeOf(val) != want {
+			t.Errorf("key %q decodes to %T, its field is %v", k, val, want)
+		}
+	}
+	got, err := ParseStudy(strings.NewReader(fullStudy), "study.yaml", "/b")
+	if err != nil || !reflect.DeepEqual(got, full) {
+		t.Fatalf("full study: %v\n got %s\nwant %s", err, dump(got), dump(full))
 	}
 	keys[0] = "changed"
 	if StudyKeys()[0] != "model" {
@@ -387,118 +389,48 @@ func TestParseFloatList(t *testing.T) {
 	}
 }
 
-// newFlags defines flags the way a command could: repeatable NAME=PATH
-// flags as string arrays, number lists as text read by ParseFloatList (one
-// as a float64 slice), and plain typed flags for the rest. It uses cobra's
-// flag set, so Apply is checked against the real flag library.
-func newFlags() *cobra.Command {
-	cmd := &cobra.Command{Use: "t"}
-	fs := cmd.Flags()
-	fs.StringArray("model", nil, "")
-	fs.StringArray("null", nil, "")
-	fs.StringArray("extra", nil, "")
-	for _, k := range []string{"occurrences", "occurrences-crs", "region", "ecoregions", "ecoregion-field", "out"} {
-		fs.String(k, "", "")
-	}
-	fs.String("ecoregion-crs-unused", "", "")
-	fs.Int("ecoregion-min-points", 1, "")
-	fs.Int("iterations", 500, "")
-	for _, k := range []string{"ecoregion-clip", "point-buffers-all", "no-thin", "membership-tif", "no-distance-null"} {
-		fs.Bool(k, false, "")
-	}
-	for _, k := range []string{"region-buffers", "point-buffers", "hull-buffers", "e"} {
-		fs.String(k, "1,2", "")
-	}
-	fs.Float64Slice("thresholds", []float64{0}, "")
-	fs.Float64("fraction", 0.5, "")
-	for _, k := range []string{"tolerance-auc", "tolerance-partial-roc", "tolerance-omission", "tolerance-boyce"} {
-		fs.Float64(k, 0.01, "")
-	}
-	fs.Uint64("seed", 1, "")
-	return cmd
-}
-
 func TestApply(t *testing.T) {
-	t.Run("study fills unset flags, command line wins", func(t *testing.T) {
-		cmd := newFlags()
-		fs := cmd.Flags()
-		if err := fs.Parse([]string{"--model", "cli=cli.tif", "--iterations=7", "--e=1", "--no-thin=false"}); err != nil {
-			t.Fatal(err)
+	given := func(names ...string) func(string) bool {
+		return func(n string) bool {
+			for _, g := range names {
+				if g == n {
+					return true
+				}
+			}
+			return false
 		}
-		st := fullStudyWant("/b")
-		if err := st.Apply(fs); err != nil {
-			t.Fatal(err)
-		}
-		model, _ := fs.GetStringArray("model")
-		extra, _ := fs.GetStringArray("extra")
-		it, _ := fs.GetInt("iterations")
-		e, _ := fs.GetString("e")
-		noThin, _ := fs.GetBool("no-thin")
-		clip, _ := fs.GetBool("ecoregion-clip")
-		rb, _ := fs.GetString("region-buffers")
-		hb, _ := fs.GetString("hull-buffers")
-		th, _ := fs.GetFloat64Slice("thresholds")
-		fr, _ := fs.GetFloat64("fraction")
-		seed, _ := fs.GetUint64("seed")
-		region, _ := fs.GetString("region")
-		crs, _ := fs.GetString("occurrences-crs")
-		mp, _ := fs.GetInt("ecoregion-min-points")
-		got := fmt.Sprintf("%q %q %d %q %v %v %q %q %v %v %d %q %q %d", model, extra, it, e, noThin, clip, rb, hb, th, fr, seed, region, crs, mp)
-		want := fmt.Sprintf("%q %q %d %q %v %v %q %q %v %v %d %q %q %d",
-			[]string{"cli=cli.tif"}, []string{"mask=/b/masks/mask.gpkg"}, 7, "1", false, true, "10,25.5,50", "", []float64{0, 0.1}, 0.5,
-			uint64(18446744073709551615), "/b/region.gpkg", "EPSG:32633", 3)
-		if got != want {
-			t.Fatalf("flags after Apply\n got %s\nwant %s", got, want)
-		}
-		if tb, _ := fs.GetFloat64("tolerance-boyce"); tb != 0.2 {
-			t.Errorf("tolerance-boyce after Apply = %v, want 0.2 from the study", tb)
-		}
-		// The list text round-trips through ParseFloatList.
-		l, err := ParseFloatList("region-buffers", rb)
-		if err != nil || !reflect.DeepEqual(l, st.RegionBuffers) {
-			t.Fatalf("round trip %v %v", l, err)
+	}
+	t.Run("study fills settings not given, command line wins", func(t *testing.T) {
+		v := settings.Defaults()
+		v.Models, v.Iterations, v.E = []string{"cli=cli.tif"}, 7, []float64{1}
+		fullStudyWant("/b").Apply(&v, given("model", "iterations", "e", "no-thin"))
+		want := settings.Defaults()
+		want.Models, want.Iterations, want.E, want.NoThin = []string{"cli=cli.tif"}, 7, []float64{1}, false
+		want.Nulls, want.Occurrences, want.OccurrencesCRS = []string{"effort=/b/effort.tif"}, "/b/occ/points.csv", "EPSG:32633"
+		want.Region, want.Ecoregions, want.EcoregionField = "/b/region.gpkg", "/shared/ecoregions.gpkg", "ECO_NAME"
+		want.EcoregionMinPoints, want.EcoregionClip, want.Extra = 3, true, []string{"mask=/b/masks/mask.gpkg"}
+		want.RegionBuffers, want.PointBuffers, want.HullBuffers = []float64{10, 25.5, 50}, []float64{5}, []float64{}
+		want.Fraction, want.Thresholds, want.Seed, want.Out = 0.5, []float64{0, 0.1}, 18446744073709551615, "/b/results"
+		want.ToleranceAUC, want.TolerancePartialROC, want.ToleranceOmission, want.ToleranceBoyce = 0.03, 0.1, 0.04, 0.2
+		if !reflect.DeepEqual(v, want) {
+			t.Fatalf("after Apply\n got %+v\nwant %+v", v, want)
 		}
 	})
 	t.Run("absent settings leave defaults", func(t *testing.T) {
-		cmd := newFlags()
-		fs := cmd.Flags()
-		if err := fs.Parse(nil); err != nil {
-			t.Fatal(err)
-		}
-		if err := (&Study{Seed: ptr(uint64(9))}).Apply(fs); err != nil {
-			t.Fatal(err)
-		}
-		it, _ := fs.GetInt("iterations")
-		seed, _ := fs.GetUint64("seed")
-		rb, _ := fs.GetString("region-buffers")
-		if it != 500 || seed != 9 || rb != "1,2" || fs.Changed("iterations") {
-			t.Fatalf("iterations %d seed %d region-buffers %q", it, seed, rb)
-		}
-	})
-	t.Run("several models append", func(t *testing.T) {
-		cmd := newFlags()
-		fs := cmd.Flags()
-		_ = fs.Parse(nil)
-		st := &Study{Model: []string{"a=a.tif", "b=b.tif"}}
-		if err := st.Apply(fs); err != nil {
-			t.Fatal(err)
-		}
-		model, _ := fs.GetStringArray("model")
-		if !reflect.DeepEqual(model, []string{"a=a.tif", "b=b.tif"}) {
-			t.Fatalf("model %q", model)
-		}
-	})
-	t.Run("missing flag is an error naming the key", func(t *testing.T) {
-		cmd := &cobra.Command{Use: "t"}
-		err := (&Study{Iterations: ptr(3)}).Apply(cmd.Flags())
-		if err == nil || !strings.Contains(err.Error(), `study key "iterations"`) || !strings.HasPrefix(err.Error(), "inputs: ") {
-			t.Fatalf("got %v", err)
+		v := settings.Defaults()
+		(&Study{"seed": uint64(9)}).Apply(&v, given())
+		want := settings.Defaults()
+		want.Seed = 9
+		if !reflect.DeepEqual(v, want) {
+			t.Fatalf("got %+v", v)
 		}
 	})
 	t.Run("nil study", func(t *testing.T) {
 		var st *Study
-		if err := st.Apply(newFlags().Flags()); err != nil {
-			t.Fatal(err)
+		v := settings.Defaults()
+		st.Apply(&v, given())
+		if !reflect.DeepEqual(v, settings.Defaults()) {
+			t.Fatalf("got %+v", v)
 		}
 	})
 }

@@ -14,7 +14,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -22,6 +21,7 @@ import (
 	"syscall"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/report/outfile"
 )
 
 // The output directory of a run is guarded so that no run loses data:
@@ -49,10 +49,6 @@ import (
 var outputNames = []string{"results.json", "scores.csv", "extents.gpkg", "extents.csv", "extents.tif",
 	"omitted_points.gpkg", "report.html", "methods.md", "figures", "run.log"}
 
-// shardOutput matches the files a shard writes (shard-I-of-N.aspf and its
-// .log): --force replaces the ones this run wrote, never another shard's.
-var shardOutput = regexp.MustCompile(`^shard-[0-9]+-of-[0-9]+\.(aspf|log)$`)
-
 const (
 	lockSuffix     = ".areasweep-lock"
 	stagePrefix    = ".areasweep-partial-"
@@ -68,6 +64,10 @@ type Dir struct {
 	Stage string // the staging folder the results are written into
 	// Demo marks the demo's run: inputs/ is also an output entry.
 	Demo bool
+	// Shard marks a shard's run (run --shard): it writes only its partial
+	// file and log, and --force replaces only those, never another
+	// shard's files or a whole run's outputs in the same folder.
+	Shard bool
 	// Cleaned is the number of staging folders of dead runs removed.
 	Cleaned int
 
@@ -88,15 +88,10 @@ var active struct {
 	dirs []*Dir
 }
 
-// Umask is the process umask, read once at start; folders are created with
-// 0777 &^ Umask like mkdir(1) does, and files with 0666 &^ Umask.
-var Umask = readUmask()
-
-func readUmask() os.FileMode {
-	m := syscall.Umask(0)
-	syscall.Umask(m)
-	return os.FileMode(m)
-}
+// Umask is the process umask, read once at start (outfile.Umask); folders
+// are created with 0777 &^ Umask like mkdir(1) does, and files with
+// 0666 &^ Umask.
+var Umask = outfile.Umask
 
 // MkdirPerm is the mode of folders areasweep creates.
 func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
@@ -110,7 +105,7 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 	d := &Dir{Out: filepath.Clean(out), force: force}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: %v", out, err))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
@@ -128,13 +123,13 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %v", out, err))
+			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
 		}
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %v", out, Cause(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
 	}
 	if err := d.makeParent(out); err != nil {
 		return nil, err
@@ -154,7 +149,7 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 	}
 	if err != nil {
 		d.release()
-		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, where, Cause(err)))
+		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
 	}
 	d.Stage = stage
 	active.mu.Lock()
@@ -176,18 +171,18 @@ func visible(entries []os.DirEntry) []os.DirEntry {
 	return v
 }
 
-// Cause is the part of a file-system error a user needs (the cause,
-// without the repeated path).
-func Cause(err error) string {
+// Cause is the part of a file-system error a user needs: the cause,
+// without the repeated path (err itself when it is not a path error).
+func Cause(err error) error {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
-		return pe.Err.Error()
+		return pe.Err
 	}
 	var le *os.LinkError
 	if errors.As(err, &le) {
-		return le.Err.Error()
+		return le.Err
 	}
-	return err.Error()
+	return err
 }
 
 // realPath resolves symbolic links in the longest existing prefix of an
@@ -261,7 +256,7 @@ func (d *Dir) makeParent(out string) error {
 		}
 	}
 	if err := os.MkdirAll(d.parent, MkdirPerm()); err != nil {
-		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
+		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 	}
 	d.created = missing
 	return nil
@@ -285,7 +280,7 @@ func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
 		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%v); choose a folder you can write to", out, d.parent, Cause(err)))
+			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())
@@ -400,7 +395,7 @@ func (d *Dir) Finish() error {
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
-			return fmt.Errorf("cannot move the results into %s: %v", d.Out, Cause(err))
+			return fmt.Errorf("cannot move the results into %s: %w", d.Out, Cause(err))
 		}
 		// --out appeared during the run: move the entries in one by one.
 	}
@@ -421,7 +416,7 @@ func (d *Dir) Finish() error {
 func (d *Dir) moveEntries() error {
 	staged, err := os.ReadDir(d.Stage)
 	if err != nil {
-		return fmt.Errorf("cannot read the staged results %s: %v", d.Stage, Cause(err))
+		return fmt.Errorf("cannot read the staged results %s: %w", d.Stage, Cause(err))
 	}
 	names := map[string]bool{}
 	for _, e := range staged {
@@ -446,15 +441,16 @@ func (d *Dir) moveEntries() error {
 	if d.Demo {
 		replace = append(append([]string{}, outputNames...), "inputs")
 	}
-	for n := range names {
-		if shardOutput.MatchString(n) {
-			replace = append(append([]string{}, replace...), n)
+	if d.Shard {
+		replace = nil
+		for _, e := range staged {
+			replace = append(replace, e.Name())
 		}
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {
 		os.RemoveAll(d.Stage)
-		return fmt.Errorf("cannot write in %s: %v", d.Out, Cause(err))
+		return fmt.Errorf("cannot write in %s: %w", d.Out, Cause(err))
 	}
 	var setAside, moved []string
 	undo := func() {
@@ -473,7 +469,7 @@ func (d *Dir) moveEntries() error {
 		}
 		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot replace %s: %v", filepath.Join(d.Out, n), Cause(err))
+			return fmt.Errorf("cannot replace %s: %w", filepath.Join(d.Out, n), Cause(err))
 		}
 		setAside = append(setAside, n)
 	}
@@ -481,7 +477,7 @@ func (d *Dir) moveEntries() error {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot move %s into %s: %v", n, d.Out, Cause(err))
+			return fmt.Errorf("cannot move %s into %s: %w", n, d.Out, Cause(err))
 		}
 		moved = append(moved, n)
 	}

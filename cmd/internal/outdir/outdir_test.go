@@ -1,12 +1,16 @@
 package outdir
 
 import (
+	"errors"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
+
+	"areasweep/cmd/internal/fault"
 )
 
 // leftovers lists staging folders, set-aside folders and lock files under
@@ -101,4 +105,20 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 			t.Errorf("left behind: %v", l)
 		}
 	})
+}
+
+// TestOpenErrorsWrapTheCause: a refused --out keeps the file system's
+// error in the chain (errors.Is finds it) and is an input error.
+func TestOpenErrorsWrapTheCause(t *testing.T) {
+	file := filepath.Join(t.TempDir(), "plain")
+	if err := os.WriteFile(file, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err := Open(filepath.Join(file, "res"), false, nil)
+	if !errors.Is(err, syscall.ENOTDIR) {
+		t.Errorf("Open under a file: %v; errors.Is(err, ENOTDIR) is false", err)
+	}
+	if !fault.IsBadInput(err) {
+		t.Errorf("Open under a file: %v is not an input error", err)
+	}
 }

@@ -38,7 +38,10 @@
 //
 // SetSums replaces where a pass's sums come from (Stream by default): a
 // merge of shard files gives the accumulators per member it read back
-// instead of reading the cells. The first pass's Sums must then carry the
+// instead of reading the cells, and a shard reads only its blocks of
+// Plan.Source with the options Stream would use (PassOptions: workers,
+// preview, the null's row tally, the valid-cell bitset while the family is
+// unclipped) on Grid and Family. The first pass's Sums must carry the
 // valid cells (Clip) and the preview.
 //
 // Errors are classified with package fault: an input error (exit 2,

@@ -9,9 +9,11 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"time"
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pass"
+	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/shardfile"
 	"areasweep/metrics"
 	"areasweep/report"
@@ -46,6 +48,7 @@ type MergeOptions struct {
 // changed since the shards ran. Then every pass takes its sums from the
 // shards instead of reading the model, and the run finishes as Run does.
 func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error) {
+	t0 := time.Now()
 	files, err := shardPaths(mo.Files)
 	if err != nil {
 		return nil, err
@@ -54,6 +57,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if err != nil {
 		return nil, err
 	}
+	readTime := time.Since(t0)
 	if first.Tool != mo.Version {
 		return nil, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", first.Source, first.Tool, mo.Version))
 	}
@@ -66,7 +70,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if rec.settingsHash() != first.Settings {
 		return nil, fault.BadInput(fmt.Errorf("%s: the recorded settings do not match the header's settings hash; the file was altered: run its shard again", first.Source))
 	}
-	o := Options{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers, Version: mo.Version,
+	o := Options{Values: settings.Values{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers}, Version: mo.Version,
 		ExpectInputs: first.Inputs, MoreInputs: files}
 	rec.apply(&o)
 	s, err := Prepare(ctx, o, io, nil)
@@ -74,7 +78,8 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		return nil, err
 	}
 	defer s.Close()
-	if err := s.useShards(merged, len(files)); err != nil {
+	s.logf("%d partial file(s) read, checked and added up in %.2f s", len(files), readTime.Seconds())
+	if err := s.useShards(merged); err != nil {
 		return nil, err
 	}
 	for i := range s.Passes() {
@@ -180,7 +185,7 @@ func readShards(files []string) (*shardfile.Merged, metrics.ShardHeader, error) 
 // reading its model, after checking that the prepared run is the shards'
 // run: the same grid and extents; the value ranges come from the shards
 // too, so no raster is read in full.
-func (s *Study) useShards(merged *shardfile.Merged, nFiles int) error {
+func (s *Study) useShards(merged *shardfile.Merged) error {
 	if merged.Width != s.grid.Width || merged.Height != s.grid.Height {
 		return fault.BadInput(fmt.Errorf("the shards were made on a %d x %d grid, the inputs give %d x %d", merged.Width, merged.Height, s.grid.Width, s.grid.Height))
 	}
@@ -199,7 +204,6 @@ func (s *Study) useShards(merged *shardfile.Merged, nFiles int) error {
 		byName[p.Name] = p
 		s.ranges[p.Name] = [2]float64{p.Lo, p.Hi}
 	}
-	s.logf("merging %d shard file(s)", nFiles)
 	s.SetSums(func(s *Study, ctx context.Context, p *Plan) (*Sums, error) {
 		mp := byName[p.Model.Name]
 		if mp == nil {

@@ -6,40 +6,15 @@ import (
 	"sync"
 
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/settings"
 	"areasweep/metrics"
 )
 
 // Options are the resolved settings of one run: the command fills them
-// from its flags and the study file and validates them before calling Run.
+// from its flags and the study file (settings.Table) and validates them
+// before calling Run.
 type Options struct {
-	Models             []string // NAME=PATH
-	Nulls              []string // NAME=PATH, rasters scored as nulls
-	NoDistanceNull     bool
-	Occurrences        string
-	OccurrencesCRS     string
-	Region             string
-	Ecoregions         string
-	EcoregionField     string
-	EcoregionMinPoints int
-	EcoregionClip      bool
-	Extra              []string // NAME=PATH
-	RegionBuffers      []float64
-	PointBuffers       []float64
-	PointBuffersAll    bool
-	HullBuffers        []float64
-	E                  []float64
-	Iterations         int
-	Fraction           float64
-	Thresholds         []float64
-	Seed               uint64
-	Out                string
-	Force              bool
-	Quiet              bool
-	NoThin             bool
-	MembershipTIFF     bool
-	Workers            int
-	// Tolerances of the equivalence verdicts (report.Settings).
-	ToleranceAUC, TolerancePartialROC, ToleranceOmission, ToleranceBoyce float64
+	settings.Values
 
 	// ExtentsOnly stops after building and exporting the family.
 	ExtentsOnly bool

@@ -3,42 +3,18 @@ package pipeline
 import (
 	"bytes"
 	"encoding/csv"
-	"fmt"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
 	"github.com/airbusgeo/godal"
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/encoding/wkb"
 	"github.com/schollz/progressbar/v3"
 
-	"areasweep/cmd/internal/outdir"
 	"areasweep/extent"
 	"areasweep/metrics"
 	"areasweep/report"
 )
-
-// writeAtomic writes data to a temporary file beside path and renames it.
-func writeAtomic(path string, data []byte) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-")
-	if err != nil {
-		return err
-	}
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		os.Remove(tmp.Name())
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		os.Remove(tmp.Name())
-		return err
-	}
-	if err := os.Chmod(tmp.Name(), 0o666&^outdir.Umask); err != nil {
-		os.Remove(tmp.Name())
-		return err
-	}
-	return os.Rename(tmp.Name(), path)
-}
 
 func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
@@ -164,82 +140,47 @@ func extentsCSV(ex []report.Extent) []byte {
 
 // writeOmittedGPKG writes the test points with, per model and threshold, a
 // 0/1 field saying whether the threshold omits them (layer
-// "test_points"), so the spatial pattern of omission can be mapped.
+// "test_points", WGS84), so the spatial pattern of omission can be mapped.
 func writeOmittedGPKG(path string, r *report.Results) error {
-	extent.Register()
-	ds, err := godal.CreateVector(godal.GeoPackage, path)
-	if err != nil {
-		return fmt.Errorf("create %s: %w", path, err)
-	}
 	wgs, err := godal.NewSpatialRefFromEPSG(4326)
 	if err != nil {
-		ds.Close()
 		return err
 	}
-	type col struct {
-		name string
-		om   map[int]bool
-	}
-	var cols []col
-	opts := []godal.CreateLayerOption{godal.NewFieldDefinition("line", godal.FTInt), godal.NewFieldDefinition("nearest_train_km", godal.FTReal)}
+	defer wgs.Close()
+	fields := []extent.LayerField{{Name: "line", Type: godal.FTInt}, {Name: "nearest_train_km", Type: godal.FTReal}}
+	var omits []map[int]bool
 	for _, o := range r.Omissions {
 		name := "omit_" + o.Model + "_" + string(o.Threshold)
 		if o.Threshold == metrics.ThresholdFixed {
 			name += "_" + ftoa(o.Value)
 		}
-		c := col{name: name, om: map[int]bool{}}
+		om := map[int]bool{}
 		for _, id := range o.Omitted {
-			c.om[id] = true
+			om[id] = true
 		}
-		cols = append(cols, c)
-		opts = append(opts, godal.NewFieldDefinition(name, godal.FTInt))
+		omits = append(omits, om)
+		fields = append(fields, extent.LayerField{Name: name, Type: godal.FTInt})
 	}
-	layer, err := ds.CreateLayer("test_points", wgs, godal.GTPoint, opts...)
-	if err != nil {
-		ds.Close()
-		return fmt.Errorf("create layer in %s: %w", path, err)
-	}
+	var feats []extent.Feature
 	for _, p := range r.Points {
 		if p.Role != "test" || p.Status != report.PointScored {
 			continue
 		}
-		geom, err := godal.NewGeometryFromWKT(fmt.Sprintf("POINT (%s %s)", ftoa(p.Lon), ftoa(p.Lat)), wgs)
+		b, err := wkb.Marshal(orb.Point{p.Lon, p.Lat})
 		if err != nil {
-			ds.Close()
 			return err
 		}
-		ft, err := layer.NewFeature(geom)
-		geom.Close()
-		if err != nil {
-			ds.Close()
-			return err
-		}
-		fl := ft.Fields()
-		if err := ft.SetFieldValue(fl["line"], p.ID); err != nil {
-			ds.Close()
-			return fmt.Errorf("write %s: %w", path, err)
-		}
-		if err := ft.SetFieldValue(fl["nearest_train_km"], p.NearestTrainKm); err != nil {
-			ds.Close()
-			return fmt.Errorf("write %s: %w", path, err)
-		}
-		for _, c := range cols {
+		vals := []any{p.ID, p.NearestTrainKm}
+		for _, om := range omits {
 			v := 0
-			if c.om[p.ID] {
+			if om[p.ID] {
 				v = 1
 			}
-			if err := ft.SetFieldValue(fl[c.name], v); err != nil {
-				ds.Close()
-				return fmt.Errorf("write %s field %s: %w", path, c.name, err)
-			}
+			vals = append(vals, v)
 		}
-		if err := layer.UpdateFeature(ft); err != nil {
-			ds.Close()
-			return err
-		}
-		ft.Close()
+		feats = append(feats, extent.Feature{WKB: b, Values: vals})
 	}
-	return ds.Close()
+	return extent.WriteLayer(path, "test_points", wgs, godal.GTPoint, fields, feats)
 }
 
 // bar is a progress bar on stderr, drawn only on a terminal.
@@ -255,6 +196,9 @@ func (s *Study) progress(what string, total int) *bar {
 
 func (b *bar) update(done, total int) {
 	if b.pb != nil {
+		if total != b.pb.GetMax() {
+			b.pb.ChangeMax(total) // a shard's pass covers fewer blocks
+		}
 		b.pb.Set(done)
 	}
 }

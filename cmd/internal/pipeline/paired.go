@@ -156,13 +156,13 @@ func (s *Study) paired() error {
 }
 
 // comparePair compares model ma on extent ea with model mb on extent eb on
-// their common test points (PairedRecords).
+// their common test points (pairedRecords).
 func (s *Study) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, error) {
 	a, b := s.evals[[2]string{ma, ea}], s.evals[[2]string{mb, eb}]
 	if a == nil || b == nil {
 		return nil, fmt.Errorf("paired %s: no evaluator for %s/%s or %s/%s", kind, ma, ea, mb, eb)
 	}
-	return PairedRecords(kind, ma, ea, mb, eb, a, b, s.draws(), s.o.E, s.thresholdKeys(ma))
+	return pairedRecords(kind, ma, ea, mb, eb, a, b, s.draws(), s.o.E, s.thresholdKeys(ma))
 }
 
 // thresholdKeys returns the omission metric keys of model's thresholds, in
@@ -180,11 +180,11 @@ func (s *Study) thresholdKeys(model string) []string {
 	return nil
 }
 
-// PairedRecords compares evaluator a (model ma on extent ea) with b (mb on
+// pairedRecords compares evaluator a (model ma on extent ea) with b (mb on
 // eb) and returns one report.Paired per score: both AUCs from the
 // placements, the partial ROC ratio per E, the omission rate per threshold
 // (keys name them) and the Boyce index from the paired resamples d.
-func PairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
+func pairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
 	cmp, err := metrics.Compare(a, b, d)
 	if err != nil {
 		return nil, err

@@ -67,13 +67,16 @@ type Plan struct {
 	// Layout holds the exact bins of the pass's accumulators.
 	Layout *metrics.Layout
 
-	src   source
+	src   Source
 	vals  []float64 // per point
 	valid []bool    // per point: the model has data there
 	rows  func(row, c0 int, vals []float64, w []int64)
 	null  *distanceNull
 	close func()
 }
+
+// Source is the pass's source of cells.
+func (p *Plan) Source() Source { return p.src }
 
 // Close releases the pass's source.
 func (p *Plan) Close() {
@@ -103,8 +106,9 @@ type SumsFunc func(s *Study, ctx context.Context, p *Plan) (*Sums, error)
 // example by sums read back from files.
 func (s *Study) SetSums(f SumsFunc) { s.sums = f }
 
-// source is a model the pass can score: a raster or a computed field.
-type source interface {
+// Source is a model the pass can score: a raster (pass.Raster) or a
+// computed field (pass.Virtual).
+type Source interface {
 	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
 	Blocks() int
 	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
@@ -153,7 +157,10 @@ func (s *Study) valueRange(name string, exact func() (lo, hi float64, ok bool, e
 	if r, known := s.ranges[name]; known {
 		return r[0], r[1], true, nil
 	}
-	return exact()
+	t0 := time.Now()
+	lo, hi, ok, err = exact()
+	s.logf("%s: value range found in %.2f s", name, time.Since(t0).Seconds())
+	return lo, hi, ok, err
 }
 
 // layout samples p's source at the points and sets p.Layout: its bins at
@@ -206,15 +213,7 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 		return nil, err
 	}
 	g, fam, m := s.grid, s.fam, p.Model
-	var pv *pass.Preview
-	if p.Index == 0 {
-		pv = pass.NewPreview(g, previewSide)
-	}
-	opt := pass.Options{Workers: s.o.Workers, Preview: pv, Rows: p.rows, RowRange: s.rows}
-	if s.valid == nil {
-		// The first pass also finds the valid cells the family is clipped to.
-		opt.Valid = extent.NewValid(g.Cells())
-	}
+	opt := s.PassOptions(p)
 	t0 := time.Now()
 	bar := s.progress("scoring "+m.Name, p.src.Blocks())
 	opt.Progress = bar.update
@@ -231,6 +230,31 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 	if m.NullKind == report.NullDistance {
 		how = "computed cell by cell (no file read)"
 	}
+	if s.rows != nil {
+		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
+	}
 	s.logf("%s: %s, block by block (%d blocks), and added to the sums of all %d extents in %.2f s", m.Name, how, p.src.Blocks(), len(fam.Members), time.Since(t0).Seconds())
-	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: pv}, nil
+	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: opt.Preview}, nil
 }
+
+// PassOptions are the options of pass p's streaming read: the workers,
+// the preview (first pass), the row callback (the distance-only null's
+// tally) and, while the family waits for its clip, a bitset for the valid
+// cells. A source of sums other than Stream that reads cells uses them.
+func (s *Study) PassOptions(p *Plan) pass.Options {
+	opt := pass.Options{Workers: s.o.Workers, Rows: p.rows, RowRange: s.rows}
+	if p.Index == 0 {
+		opt.Preview = pass.NewPreview(s.grid, previewSide)
+	}
+	if s.valid == nil {
+		// The first pass also finds the valid cells the family is clipped to.
+		opt.Valid = extent.NewValid(s.grid.Cells())
+	}
+	return opt
+}
+
+// Grid is the run's grid.
+func (s *Study) Grid() *extent.Grid { return s.grid }
+
+// Family is the run's extent family (clipped after the first pass).
+func (s *Study) Family() *extent.Family { return s.fam }

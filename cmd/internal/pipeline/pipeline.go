@@ -14,6 +14,7 @@ import (
 	"areasweep/extent/gdalmsg"
 	"areasweep/metrics"
 	"areasweep/report"
+	"areasweep/report/outfile"
 )
 
 // histBins is the size of the fine histogram used for the Boyce index and
@@ -164,7 +165,7 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 		if err := s.writeFamily(); err != nil {
 			return nil, err
 		}
-		if err := writeAtomic(filepath.Join(s.stage, "extents.csv"), extentsCSV(s.res.Extents)); err != nil {
+		if err := outfile.Write(filepath.Join(s.stage, "extents.csv"), extentsCSV(s.res.Extents), 0o666); err != nil {
 			return nil, WriteFailed(err)
 		}
 	} else {
@@ -185,7 +186,7 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 	}
 	s.libraryMessages()
 	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(s.start).Seconds())
-	if err := writeAtomic(filepath.Join(s.stage, "run.log"), []byte(s.log.String())); err != nil {
+	if err := outfile.Write(filepath.Join(s.stage, "run.log"), []byte(s.log.String()), 0o666); err != nil {
 		return nil, WriteFailed(err)
 	}
 	if err := s.dir.Finish(); err != nil {
@@ -201,10 +202,10 @@ func (s *Study) writeResults() error {
 	if err != nil {
 		return fault.Internal(err)
 	}
-	if err := writeAtomic(filepath.Join(s.stage, "results.json"), data); err != nil {
+	if err := outfile.Write(filepath.Join(s.stage, "results.json"), data, 0o666); err != nil {
 		return WriteFailed(err)
 	}
-	if err := writeAtomic(filepath.Join(s.stage, "scores.csv"), scoresCSV(s.res)); err != nil {
+	if err := outfile.Write(filepath.Join(s.stage, "scores.csv"), scoresCSV(s.res), 0o666); err != nil {
 		return WriteFailed(err)
 	}
 	if err := writeOmittedGPKG(filepath.Join(s.stage, "omitted_points.gpkg"), s.res); err != nil {
@@ -247,7 +248,7 @@ func (s *Study) warn(msg string) {
 
 // WriteFailed words an error while writing the outputs (exit 1).
 func WriteFailed(err error) error {
-	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err)))
+	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err).Error()))
 }
 
 // libraryMessages moves the messages GDAL and its libraries raised outside

@@ -16,6 +16,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/extent/place"
 	"areasweep/report"
 )
 
@@ -98,52 +99,59 @@ func shortText(s string, n int) string {
 	return s
 }
 
-// readPoints reads the occurrence table, places each record on the grid,
-// drops those outside the raster or on no-data, and thins duplicates.
-func (s *Study) readPoints() error {
-	o, g := s.o, s.grid
+// readLonLat reads the occurrence table and returns its coordinates as
+// WGS84 longitudes and latitudes (transformed from --occurrences-crs when
+// that is another CRS, a geographic one on another datum included). It
+// notes when projected coordinates all fit in degree ranges (most likely
+// degrees given the wrong --occurrences-crs; used for a hint).
+func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err error) {
+	o := s.o
 	geographic := true
 	var toLL *godal.Transform
 	if o.OccurrencesCRS != "" {
 		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %v", o.OccurrencesCRS, err))
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %w", o.OccurrencesCRS, err))
 		}
 		geographic = sr.Geographic()
-		// Any CRS other than WGS84 itself is transformed, a geographic one
-		// on another datum (e.g. EPSG:4258) included.
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
 		if !sr.IsSame(wgs) {
 			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
-				return fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %v", o.OccurrencesCRS, err))
+				return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %w", o.OccurrencesCRS, err))
 			}
 			defer toLL.Close()
 		}
 	}
-	recs, err := inputs.ReadOccurrences(o.Occurrences, geographic)
+	recs, err = inputs.ReadOccurrences(o.Occurrences, geographic)
 	if err != nil {
-		return fault.BadInput(err)
+		return nil, nil, nil, fault.BadInput(err)
 	}
-	n := len(recs)
-	// Projected coordinates that all fit in degree ranges are most likely
-	// degrees given the wrong --occurrences-crs (used for a hint).
 	s.rawDegrees = !geographic
-	for _, r := range recs {
+	lons, lats = make([]float64, len(recs)), make([]float64, len(recs))
+	for i, r := range recs {
 		if math.Abs(r.X) > 180 || math.Abs(r.Y) > 90 {
 			s.rawDegrees = false
 		}
-	}
-	lons := make([]float64, n)
-	lats := make([]float64, n)
-	for i, r := range recs {
 		lons[i], lats[i] = r.X, r.Y
 	}
 	if toLL != nil {
-		okv := make([]bool, n)
+		okv := make([]bool, len(recs))
 		if err := toLL.TransformEx(lons, lats, nil, okv); err != nil {
-			return fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %v", o.Occurrences, o.OccurrencesCRS, err))
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %w", o.Occurrences, o.OccurrencesCRS, err))
 		}
 	}
+	return lons, lats, recs, nil
+}
+
+// readPoints reads the occurrence table, places each record on the grid,
+// drops those outside the raster or on no-data, and thins duplicates.
+func (s *Study) readPoints() error {
+	o, g := s.o, s.grid
+	lons, lats, recs, err := s.readLonLat()
+	if err != nil {
+		return err
+	}
+	n := len(recs)
 	xs := make([]float64, n)
 	ys := make([]float64, n)
 	g.FromLonLat(lons, lats, xs, ys)
@@ -182,19 +190,32 @@ func (s *Study) readPoints() error {
 			return fault.BadInput(err)
 		}
 	}
-	var outside, nodata []string
-	for i := range s.points {
-		p := &s.points[i]
-		if p.Status == report.PointOutsideRaster {
-			outside = append(outside, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
-			s.cell[i] = -1
-			continue
+	// Which records are scored: none outside the raster or on no data,
+	// and one per cell and role unless --no-thin (extent/place).
+	rr := place.Records{Cell: s.cell, Valid: pointValid, Role: make([]int, len(s.points))}
+	for i, p := range s.points {
+		if p.Role != "train" {
+			rr.Role[i] = place.Test
 		}
-		if !pointValid[i] {
-			p.Status = report.PointNoData
-			nodata = append(nodata, fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat))
-			s.cell[i] = -1
-		}
+	}
+	pl := place.Place(rr, !o.NoThin)
+	s.cell = pl.Cell
+	where := func(i int) string {
+		p := s.points[i]
+		return fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat)
+	}
+	var outside, nodata, pairs []string
+	for _, i := range pl.Outside {
+		outside = append(outside, where(i))
+	}
+	for _, i := range pl.NoData {
+		s.points[i].Status = report.PointNoData
+		nodata = append(nodata, where(i))
+	}
+	for _, d := range pl.Thinned {
+		p := &s.points[d.Record]
+		p.Status = report.PointThinned
+		pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[d.First].ID, p.Role))
 	}
 	if len(outside) > 0 {
 		s.warn(fmt.Sprintf("%d occurrence(s) outside the raster, not scored: %s", len(outside), listSome(outside, 10)))
@@ -202,31 +223,24 @@ func (s *Study) readPoints() error {
 	if len(nodata) > 0 {
 		s.warn(fmt.Sprintf("%d occurrence(s) on no-data cells of %s, not scored: %s", len(nodata), s.models[0].Name, listSome(nodata, 10)))
 	}
-	// Thinning: one presence per cell and role, the first line kept.
-	if !o.NoThin {
-		seen := map[[2]int]int{}
-		thinned := 0
-		var pairs []string
-		for i := range s.points {
-			p := &s.points[i]
-			if s.cell[i] < 0 {
-				continue
-			}
-			key := [2]int{s.cell[i], roleIndex(p.Role)}
-			if first, dup := seen[key]; dup {
-				p.Status = report.PointThinned
-				thinned++
-				pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[first].ID, p.Role))
-				s.cell[i] = -1
-				continue
-			}
-			seen[key] = i
-		}
-		if thinned > 0 {
-			s.logf("thinned: %s", listSome(pairs, 10))
-			s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", thinned))
-		}
+	if len(pairs) > 0 {
+		s.logf("thinned: %s", listSome(pairs, 10))
+		s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", len(pairs)))
 	}
+	s.countPoints()
+	c := s.res.PointCounts
+	if c.Test == 0 {
+		return fault.BadInput(s.noTestPoint(r))
+	}
+	if c.Train == 0 {
+		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
+	}
+	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
+	return nil
+}
+
+// countPoints fills Results.PointCounts from the points' statuses.
+func (s *Study) countPoints() {
 	c := &s.res.PointCounts
 	for _, p := range s.points {
 		switch p.Status {
@@ -244,14 +258,6 @@ func (s *Study) readPoints() error {
 			c.NoData++
 		}
 	}
-	if c.Test == 0 {
-		return fault.BadInput(s.noTestPoint(r))
-	}
-	if c.Train == 0 {
-		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
-	}
-	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
-	return nil
 }
 
 // noTestPoint explains why no test point can be scored, blaming the input
@@ -277,13 +283,6 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 		}
 	}
 	return errors.New(msg)
-}
-
-func roleIndex(r string) int {
-	if r == "train" {
-		return 0
-	}
-	return 1
 }
 
 func listSome(items []string, n int) string {

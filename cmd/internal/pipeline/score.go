@@ -1,12 +1,10 @@
 package pipeline
 
 import (
-	"encoding/base64"
 	"encoding/binary"
 	"fmt"
 	"hash/fnv"
 	"math"
-	"sort"
 	"time"
 
 	"areasweep/cmd/internal/pass"
@@ -48,104 +46,21 @@ func (s *Study) split(vals []float64, valid []bool) modelPoints {
 // also each extent's sorting bias. The family must be final (clipped).
 func (s *Study) Score(p *Plan, sums *Sums) error {
 	t0 := time.Now()
-	fam := s.fam
-	m, accs, stats, vals, valid := p.Model, sums.Accs, sums.Stats, p.vals, p.valid
-	floor := 0.0
-	if stats.Area > 0 {
-		floor = float64(stats.FloorArea) / float64(stats.Area)
-	}
-	m.ValueMin, m.ValueMax, m.FloorShare = stats.Min, stats.Max, floor
-	s.res.Models = append(s.res.Models, m)
-	if sums.Preview != nil {
-		s.res.Preview = s.preview(sums.Preview, stats)
-	}
-	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds}
+	m := s.recordModel(p.Model, sums)
 	// Training-presence thresholds come from all of the model's scored
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
-	mp := s.split(vals, valid)
-	set.ThresholdTrain = append([]float64{}, mp.train...)
-	// Presence values per extent: only points inside the extent count.
-	presence := func(k int, role string) []float64 {
-		var out []float64
-		for j, p := range s.points {
-			if p.Status == report.PointScored && p.Role == role && valid[j] && fam.Has(k, s.cell[j]) {
-				out = append(out, vals[j])
-			}
+	mp := s.split(p.vals, p.valid)
+	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds,
+		ThresholdTrain: append([]float64{}, mp.train...)}
+	in := pointsIn{s: s, vals: p.vals, valid: p.valid, global: s.globalTest()}
+	for k := range s.fam.Members {
+		if err := s.scoreExtent(m.Name, k, sums.Accs[k], in, len(mp.test), set); err != nil {
+			return err
 		}
-		return out
 	}
-	nTest := len(mp.test)
-	gidx := s.globalTest()
-	testIDs := func(k int) (global, ids []int) {
-		for j, p := range s.points {
-			if p.Status == report.PointScored && p.Role == "test" && valid[j] && fam.Has(k, s.cell[j]) {
-				global, ids = append(global, gidx[j]), append(ids, p.ID)
-			}
-		}
-		return global, ids
-	}
-	for k, mem := range fam.Members {
-		sc := report.Score{Model: m.Name, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
-		switch mem.Status {
-		case extent.StatusEmpty:
-			sc.NotScored = "extent covers no valid cell"
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		case extent.StatusDuplicate:
-			sc.NotScored = "same cells as " + mem.DuplicateOf
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		}
-		train, test := presence(k, "train"), presence(k, "test")
-		sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
-		set.Seed = deriveSeed(s.o.Seed, m.Name, mem.ID)
-		out, err := metrics.Score(accs[k], train, test, set)
-		if err != nil {
-			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
-		}
-		sc.Cells, sc.AreaKm2 = out.Cells, float64(out.Area)/pass.AreaUnitsPerKm2
-		sc.TestPoints, sc.TrainPoints = out.TestN, out.TrainN
-		if !out.Scored {
-			sc.NotScored = out.NotScored
-			if out.TestN == 0 {
-				sc.NotScored = "no test points inside this extent"
-			}
-			s.res.Scores = append(s.res.Scores, sc)
-			continue
-		}
-		sc.Scored = true
-		sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE = out.AUC, out.AUCUnweighted, out.AUCTrain, out.AUCSE
-		sc.AUCUnweightedSEDeLong = math.Sqrt(out.AUCUnweightedVarDeLong)
-		global, ids := testIDs(k)
-		sc.TestPointIDs, sc.Placements, sc.PlacementsUnweighted = ids, out.Placements, out.PlacementsUnweighted
-		for _, p := range out.PartialROC {
-			sc.PartialROC = append(sc.PartialROC, report.PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
-				TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
-				Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
-				CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
-		}
-		if sc.AUCBootSD, err = s.evaluator(m.Name, mem.ID, accs[k], test, global, out, set); err != nil {
-			return fmt.Errorf("model %s extent %s: %w", m.Name, mem.ID, err)
-		}
-		for _, t := range out.Thresholds {
-			sc.Thresholds = append(sc.Thresholds, report.Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,
-				AreaFraction: t.AreaFraction, Successes: t.Successes, N: t.N, PBinomial: t.PBinomial})
-		}
-		if out.Boyce.Defined {
-			sc.Boyce = &report.Boyce{Index: out.Boyce.Index, Windows: out.Boyce.Windows, Used: out.Boyce.Used, Mid: out.Boyce.Mid, Ratio: out.Boyce.Ratio}
-		}
-		cv := report.Curve{Model: m.Name, Extent: mem.ID}
-		for _, pt := range out.Curve {
-			cv.X = append(cv.X, pt.X)
-			cv.Y = append(cv.Y, pt.Y)
-		}
-		s.res.Curves = append(s.res.Curves, cv)
-		s.res.Scores = append(s.res.Scores, sc)
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", m.Name, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
-	}
-	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(fam.Members), time.Since(t0).Seconds())
-	if err := s.rings(m.Name, accs, presence); err != nil {
+	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(s.fam.Members), time.Since(t0).Seconds())
+	if err := s.rings(m.Name, sums.Accs, in.values); err != nil {
 		return err
 	}
 	s.omissions(m.Name, mp)
@@ -153,6 +68,99 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 		s.res.Settings.DistanceNull = true
 		s.sortingBias(p.null.ix, &p.null.bg)
 	}
+	return nil
+}
+
+// recordModel records model m with its pass's value range and floor share,
+// and the preview when the pass made one.
+func (s *Study) recordModel(m report.Model, sums *Sums) report.Model {
+	st := sums.Stats
+	floor := 0.0
+	if st.Area > 0 {
+		floor = float64(st.FloorArea) / float64(st.Area)
+	}
+	m.ValueMin, m.ValueMax, m.FloorShare = st.Min, st.Max, floor
+	s.res.Models = append(s.res.Models, m)
+	if sums.Preview != nil {
+		s.res.Preview = s.preview(sums.Preview, st)
+	}
+	return m
+}
+
+// pointsIn picks a pass's values at the scored points that lie inside an
+// extent.
+type pointsIn struct {
+	s      *Study
+	vals   []float64 // per point
+	valid  []bool    // per point: the model has data there
+	global []int     // per point: its index among the run's test points
+}
+
+// inside reports whether point j is scored, of role, with data, in member k.
+func (q pointsIn) inside(j, k int, role string) bool {
+	p := q.s.points[j]
+	return p.Status == report.PointScored && p.Role == role && q.valid[j] && q.s.fam.Has(k, q.s.cell[j])
+}
+
+// values returns the values of the points of role inside member k.
+func (q pointsIn) values(k int, role string) []float64 {
+	var out []float64
+	for j := range q.s.points {
+		if q.inside(j, k, role) {
+			out = append(out, q.vals[j])
+		}
+	}
+	return out
+}
+
+// testIDs returns the run-wide indices and the ids of the test points
+// inside member k.
+func (q pointsIn) testIDs(k int) (global, ids []int) {
+	for j, p := range q.s.points {
+		if q.inside(j, k, "test") {
+			global, ids = append(global, q.global[j]), append(ids, p.ID)
+		}
+	}
+	return global, ids
+}
+
+// scoreExtent scores model on member k from its accumulator acc: nothing
+// for an empty or duplicate member, else metrics.Score on the points
+// inside, the paired evaluator and the ROC curve. nTest is the number of
+// the model's scored test points (for those outside the extent).
+func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in pointsIn, nTest int, set metrics.Settings) error {
+	mem := s.fam.Members[k]
+	sc := report.Score{Model: model, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
+	switch mem.Status {
+	case extent.StatusEmpty:
+		sc.NotScored = "extent covers no valid cell"
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	case extent.StatusDuplicate:
+		sc.NotScored = "same cells as " + mem.DuplicateOf
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	}
+	train, test := in.values(k, "train"), in.values(k, "test")
+	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
+	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
+	out, err := metrics.Score(acc, train, test, set)
+	if err != nil {
+		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+	}
+	sc.SetScores(out, pass.AreaUnitsPerKm2)
+	if !sc.Scored {
+		s.res.Scores = append(s.res.Scores, sc)
+		return nil
+	}
+	global, ids := in.testIDs(k)
+	sc.TestPointIDs = ids
+	if sc.AUCBootSD, err = s.evaluator(model, mem.ID, acc, test, global, out, set); err != nil {
+		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+	}
+	s.res.Curves = append(s.res.Curves, report.NewCurve(model, mem.ID, out.Curve))
+	s.res.Scores = append(s.res.Scores, sc)
+	s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", model, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
 	return nil
 }
 
@@ -167,45 +175,23 @@ func firstRatio(sc report.Score) string {
 	return fmt.Sprintf("%.4f", sc.PartialROC[0].Ratio)
 }
 
-// aucOf is the area-weighted Mann-Whitney AUC of presence values against
-// the background in a:
-//
-//	sum_p [W(< v_p) + W(= v_p)/2] / (n W)
-//
-// with exact areas from the accumulator's bins (Hanley & McNeil 1982).
-func aucOf(a *metrics.Accumulator, vals []float64) (float64, bool) {
-	return a.AUCAgainst(vals)
-}
-
-// rings decomposes each nested chain: for consecutive members A inside B,
-// the ring R = B minus A is scored against the test presences of B, and
-//
-//	AUC_B = (W_A AUC_A' + W_R AUC_R) / (W_A + W_R)
-//
-// holds exactly, where AUC_A' is the AUC of B's presences against A's cells.
+// rings decomposes each nested chain (metrics.DecomposeRing): for
+// consecutive members A inside B, the ring R = B minus A is scored against
+// the test presences of B; ShareOfChange is each ring's share of the
+// chain's change of AUC from its innermost to its outermost member.
 func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
 	for _, name := range s.fam.ChainNames() {
 		chain := s.fam.Chain(name)
 		var rs []report.Ring
 		for i := 1; i < len(chain); i++ {
 			a, b := chain[i-1], chain[i]
-			ring, err := accs[b].Sub(accs[a])
+			r, err := metrics.DecomposeRing(accs[a], accs[b], presence(b, "test"))
 			if err != nil {
 				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, err)
 			}
-			test := presence(b, "test")
-			aIn, ok1 := aucOf(accs[a], test)
-			aRing, ok2 := aucOf(ring, test)
-			aOut, ok3 := aucOf(accs[b], test)
-			if !ok1 || !ok3 {
-				continue
+			if r.Defined {
+				rs = append(rs, report.NewRing(name, model, s.fam.Members[a].ID, s.fam.Members[b].ID, r, pass.AreaUnitsPerKm2))
 			}
-			if !ok2 {
-				aRing = 0
-			}
-			rs = append(rs, report.Ring{Chain: name, Model: model, Inner: s.fam.Members[a].ID, Outer: s.fam.Members[b].ID,
-				InnerAreaKm2: float64(accs[a].Area()) / pass.AreaUnitsPerKm2, RingAreaKm2: float64(ring.Area()) / pass.AreaUnitsPerKm2,
-				RingCells: ring.Cells(), AUCInner: aIn, AUCRing: aRing, AUCOuter: aOut})
 		}
 		if len(rs) == 0 {
 			continue
@@ -221,60 +207,32 @@ func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(i
 	return nil
 }
 
-// omissions lists, per threshold, the test points the model omits. The
-// thresholds come from the training presences and fixed values only, so
-// the lists do not depend on the extent.
+// omissions lists, per threshold metrics tests (metrics.ThresholdRules),
+// the test points the model omits (metrics.Omitted). The thresholds come
+// from the training presences and fixed values only, so the lists do not
+// depend on the extent.
 func (s *Study) omissions(model string, mp modelPoints) {
-	train, test, testIDs := mp.train, mp.test, mp.testIDs
-	type th struct {
-		name metrics.ThresholdRule
-		v    float64
-	}
-	var ths []th
-	if len(train) > 0 {
-		sorted := append([]float64(nil), train...)
-		sort.Float64s(sorted)
-		ths = append(ths, th{metrics.ThresholdMTP, sorted[0]}, th{metrics.ThresholdP10, sorted[metrics.P10Index(len(sorted))]})
-	}
-	for _, v := range s.o.Thresholds {
-		ths = append(ths, th{metrics.ThresholdFixed, v})
-	}
-	for _, t := range ths {
-		om := report.Omission{Model: model, Threshold: t.name, Value: t.v, Omitted: []int{}}
-		for k, v := range test {
-			if v < t.v {
-				om.Omitted = append(om.Omitted, testIDs[k])
-			}
+	for _, t := range metrics.ThresholdRules(mp.train, s.o.Thresholds) {
+		om := report.Omission{Model: model, Threshold: t.Name, Value: t.Value, Omitted: []int{}}
+		for _, i := range metrics.Omitted(t.Value, mp.test) {
+			om.Omitted = append(om.Omitted, mp.testIDs[i])
 		}
 		s.res.Omissions = append(s.res.Omissions, om)
 	}
 }
 
-// preview packs the pass's coarse copy and the extents' masks.
+// preview packs the pass's coarse copy and the extents' masks
+// (report.NewPreview), values scaled over the pass's value range.
 func (s *Study) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 	g, fam := s.grid, s.fam
-	lo, hi := st.Min, st.Max
-	vals := make([]byte, len(pv.Values))
-	for i, v := range pv.Values {
-		switch {
-		case math.IsNaN(v):
-			vals[i] = 255
-		case hi > lo:
-			vals[i] = byte(math.Round(math.Max(0, math.Min(1, (v-lo)/(hi-lo))) * 254))
-		}
-	}
-	p := &report.Preview{Width: pv.Width, Height: pv.Height, Bounds: g.Bounds(), ValueMin: lo, ValueMax: hi,
-		Values: base64.StdEncoding.EncodeToString(vals)}
+	masks := make([][]bool, len(fam.Members))
 	for k := range fam.Members {
-		bits := make([]byte, (len(pv.Values)+7)/8)
+		masks[k] = make([]bool, len(pv.Values))
 		for i := range pv.Values {
-			if fam.Has(k, pv.SourceCell(g, i)) {
-				bits[i/8] |= 1 << uint(i%8)
-			}
+			masks[k][i] = fam.Has(k, pv.SourceCell(g, i))
 		}
-		p.Masks = append(p.Masks, base64.StdEncoding.EncodeToString(bits))
 	}
-	return p
+	return report.NewPreview(pv.Width, pv.Height, g.Bounds(), pv.Values, st.Min, st.Max, masks)
 }
 
 // analyse adds distances between test and training points and the

@@ -14,6 +14,7 @@ import (
 	"areasweep/cmd/internal/shardfile"
 	"areasweep/extent"
 	"areasweep/metrics"
+	"areasweep/report/outfile"
 )
 
 // ShardFileName is the name of the partial file shard i of n writes into
@@ -136,9 +137,14 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 		return err
 	}
 	defer s.Close()
+	s.dir.Shard = true
 	blocks, rows := shardfile.Rows(i, n, s.grid.Height)
 	s.rows = &rows
-	s.logf("shard %d of %d: grid rows %d to %d of %d", i, n, rows.First, rows.End, s.grid.Height)
+	if rows.End > rows.First {
+		s.logf("shard %d of %d: grid rows %d to %d (of %d rows)", i, n, rows.First, rows.End-1, s.grid.Height)
+	} else {
+		s.logf("shard %d of %d: no grid row (more shards than the grid's %d rows); the partial file holds empty sums", i, n, s.grid.Height)
+	}
 	sh := &shardfile.Shard{Header: s.shardHeader(i, n, blocks), Width: s.grid.Width, Height: s.grid.Height}
 	if sh.Run, err = json.Marshal(recordRun(s.o)); err != nil {
 		return fault.Internal(err)
@@ -155,12 +161,12 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 	if err != nil {
 		return fault.Internal(err)
 	}
-	if err := writeAtomic(filepath.Join(s.stage, ShardFileName(i, n)), data); err != nil {
+	if err := outfile.Write(filepath.Join(s.stage, ShardFileName(i, n)), data, 0o666); err != nil {
 		return WriteFailed(err)
 	}
 	s.libraryMessages()
 	s.logf("shard finished in %.2f s (before moving the partial file into place)", time.Since(s.start).Seconds())
-	if err := writeAtomic(filepath.Join(s.stage, ShardLogName(i, n)), []byte(s.log.String())); err != nil {
+	if err := outfile.Write(filepath.Join(s.stage, ShardLogName(i, n)), []byte(s.log.String()), 0o666); err != nil {
 		return WriteFailed(err)
 	}
 	return s.dir.Finish()
@@ -182,7 +188,7 @@ func (s *Study) shardPass(ctx context.Context, k int, sh *shardfile.Shard) error
 		sh.Valid = shardfile.ValidRuns(sums.Valid, s.grid.Width, *s.rows)
 		sh.PreviewWidth, sh.PreviewHeight = sums.Preview.Width, sums.Preview.Height
 		sh.Preview = shardfile.PreviewCells(sums.Preview)
-		s.shardClip(sums.Valid)
+		s.timed("family clipped as far as the shard's rows tell", func() error { s.shardClip(sums.Valid); return nil })
 	}
 	lo, hi := p.Layout.HistRange()
 	sh.Passes = append(sh.Passes, shardfile.Pass{Name: p.Model.Name, Lo: lo, Hi: hi, Layout: p.Layout, Accs: sums.Accs, Stats: sums.Stats})

@@ -8,7 +8,8 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
-	"sync"
+
+	"areasweep/extent"
 
 	"github.com/airbusgeo/godal"
 )
@@ -51,8 +52,6 @@ type Model struct {
 	Path string
 }
 
-var registerOnce sync.Once
-
 // Write creates dir (must not exist or be empty) and writes the scenario. Same seed -> byte-identical
 // CSV/YAML and identical raster values.
 //
@@ -73,12 +72,10 @@ func Write(dir string, seed uint64) (Files, error) {
 	if err := os.MkdirAll(abs, 0o755); err != nil {
 		return Files{}, fmt.Errorf("scenario: create directory: %w", err)
 	}
-	registerOnce.Do(godal.RegisterAll)
-	// A fixed GeoPackage timestamp (GDAL's OGR_CURRENT_DATE) makes the
-	// GeoPackages byte-identical for the same seed.
-	if os.Getenv("OGR_CURRENT_DATE") == "" {
-		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
-	}
+	// GDAL is configured by the program (extent.Configure: its fixed
+	// GeoPackage timestamp makes the GeoPackages byte-identical for the
+	// same seed); the drivers are registered here in case it was not.
+	extent.Register()
 
 	sc := newScene(seed)
 	f := Files{

@@ -13,6 +13,8 @@ import (
 	"strconv"
 	"testing"
 
+	"areasweep/extent"
+
 	"github.com/airbusgeo/godal"
 	"go.yaml.in/yaml/v3"
 )
@@ -42,7 +44,8 @@ func writeSeed(t *testing.T, seed uint64) Files {
 var tmpDirs []string
 
 func TestMain(m *testing.M) {
-	godal.RegisterAll()
+	extent.Configure() // as the program does: fixed GeoPackage dates
+
 	code := m.Run()
 	for _, d := range tmpDirs {
 		os.RemoveAll(d)

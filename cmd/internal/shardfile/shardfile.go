@@ -216,6 +216,9 @@ func Decode(data []byte, source string) (*Shard, error) {
 	if m.Width < 1 || m.Height < 1 || m.Height != s.Header.TotalBlocks || len(s.Header.Blocks) > 1 {
 		return nil, bad("grid %d x %d does not match the header's %d rows in %d range(s)", m.Width, m.Height, s.Header.TotalBlocks, len(s.Header.Blocks))
 	}
+	if len(m.Members) == 0 || len(m.Members) > extent.MaxMembers {
+		return nil, bad("%d extents; a family holds 1 to %d", len(m.Members), extent.MaxMembers)
+	}
 	if m.PreviewWidth < 0 || m.PreviewHeight < 0 || m.PreviewWidth > m.Width || m.PreviewHeight > m.Height {
 		return nil, bad("preview %d x %d does not fit the grid", m.PreviewWidth, m.PreviewHeight)
 	}

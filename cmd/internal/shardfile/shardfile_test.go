@@ -239,3 +239,114 @@ func TestMergedRefusesOtherRuns(t *testing.T) {
 		}
 	}
 }
+
+// FuzzDecode feeds Decode raw bytes and valid partial files with sections
+// changed behind a valid envelope. It must never panic, and what it
+// accepts must encode, decode again and encode to the same bytes.
+func FuzzDecode(f *testing.F) {
+	l1, _ := metrics.NewLayout([]float64{0.25, 0.5, 0.9}, 0, 1, 64)
+	l2, _ := metrics.NewLayout([]float64{0.1, 0.775}, 0, 1, 64)
+	for _, n := range []int{1, 3} {
+		s := shardOf(&testing.T{}, 1, n, 5, []*metrics.Layout{l1, l2})
+		data, err := Encode(s)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(data, "", []byte(nil))
+		f.Add(data, "valid", []byte{0, 0, 0, 0})
+		f.Add(data, "meta", []byte(`{"width":23,"height":17,"members":[],"passes":[],"preview_width":0,"preview_height":0,"background":false}`))
+	}
+	f.Fuzz(func(t *testing.T, data []byte, section string, replace []byte) {
+		if section != "" {
+			// Put replace in place of the named section, behind a valid
+			// header and checksum, so that the section checks are reached.
+			pf, err := metrics.DecodePartial(data, "fuzz")
+			if err != nil {
+				return
+			}
+			for i := range pf.Sections {
+				if pf.Sections[i].Name == section {
+					pf.Sections[i].Data = replace
+				}
+			}
+			if data, err = metrics.EncodePartial(pf); err != nil {
+				return
+			}
+		}
+		s, err := Decode(data, "fuzz")
+		if err != nil {
+			return
+		}
+		a, err := Encode(s)
+		if err != nil {
+			t.Fatalf("accepted shard does not encode: %v", err)
+		}
+		s2, err := Decode(a, "fuzz")
+		if err != nil {
+			t.Fatalf("re-encoded shard is refused: %v", err)
+		}
+		b, err := Encode(s2)
+		if err != nil || !bytes.Equal(a, b) {
+			t.Fatalf("encoding is not stable (%v)", err)
+		}
+	})
+}
+
+// BenchmarkDecodeMerge measures what a merge does per partial file:
+// decode it (checksums, every accumulator) and add it to the sum, for
+// shards of 13 extents x 3 passes with layouts of 1,000 values and 4,096
+// histogram bins (the benchmark study's size); bytes/s is file bytes.
+func BenchmarkDecodeMerge(b *testing.B) {
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = float64(i) / 1000
+	}
+	l, err := metrics.NewLayout(vals, 0, 1, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	ids := make([]string, 13)
+	for k := range ids {
+		ids[k] = fmt.Sprint("e", k)
+	}
+	mk := func(i int) []byte {
+		blocks, _ := Rows(i, 4, 400)
+		s := &Shard{Header: metrics.ShardHeader{Tool: "bench", Settings: strings.Repeat("cd", 32), Shard: i, Shards: 4, TotalBlocks: 400, Blocks: blocks},
+			Run: []byte(`{}`), Width: 500, Height: 400, Members: ids, PreviewWidth: 1, PreviewHeight: 1}
+		rng := rand.New(rand.NewPCG(uint64(i), 3))
+		for p := range 3 {
+			ps := Pass{Name: fmt.Sprint("m", p), Hi: 1, Layout: l}
+			for range ids {
+				a := l.NewAccumulator()
+				for range 20000 {
+					a.Add(rng.Float64(), 1000)
+				}
+				ps.Accs = append(ps.Accs, a)
+			}
+			s.Passes = append(s.Passes, ps)
+		}
+		for range 100 {
+			s.Valid = append(s.Valid, []int32{0, 500})
+		}
+		data, err := Encode(s)
+		if err != nil {
+			b.Fatal(err)
+		}
+		return data
+	}
+	files := [][]byte{mk(1), mk(2), mk(3), mk(4)}
+	b.SetBytes(int64(len(files[0]) * len(files)))
+	b.ReportAllocs()
+	for b.Loop() {
+		m := &Merged{}
+		for _, f := range files {
+			s, err := Decode(f, "bench")
+			if err != nil {
+				b.Fatal(err)
+			}
+			if err := m.Add(s); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+}

@@ -14,6 +14,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"areasweep/report/outfile"
 )
 
 // MarkerName is the file whose presence in a task's output folder means the
@@ -63,7 +65,7 @@ func WriteManifest(w io.Writer, tasks []Task) error {
 	fmt.Fprintln(bw, manifestHeader)
 	for i, t := range tasks {
 		if err := t.check(); err != nil {
-			return fmt.Errorf("%w: task %d: %v", ErrManifest, i+1, err)
+			return fmt.Errorf("%w: task %d: %w", ErrManifest, i+1, err)
 		}
 		fmt.Fprintf(bw, "%s\t%d/%d\t%s\n", t.Study, t.Shard, t.Shards, t.Out)
 	}
@@ -96,7 +98,7 @@ func ReadManifest(r io.Reader, name string) ([]Task, error) {
 		}
 		t := Task{Study: f[0], Shard: i, Shards: n, Out: f[2]}
 		if err := t.check(); err != nil {
-			return nil, fmt.Errorf("%w: %s line %d: %v", ErrManifest, name, line, err)
+			return nil, fmt.Errorf("%w: %s line %d: %w", ErrManifest, name, line, err)
 		}
 		tasks = append(tasks, t)
 	}
@@ -232,42 +234,26 @@ func (p *Plan) Write() (Files, error) {
 	if err := WriteManifest(&m, p.Tasks); err != nil {
 		return Files{}, err
 	}
-	if err := writeAtomic(f.Manifest, m.Bytes(), 0o644); err != nil {
+	if err := writeAtomic(f.Manifest, m.Bytes(), 0o666); err != nil {
 		return Files{}, err
 	}
-	if err := writeAtomic(f.Array, []byte(p.arrayScript(f)), 0o755); err != nil {
+	if err := writeAtomic(f.Array, []byte(p.arrayScript(f)), 0o777); err != nil {
 		return Files{}, err
 	}
 	if p.MergeCommand != "" {
 		f.Merge = filepath.Join(p.Dir, "merge.sh")
-		if err := writeAtomic(f.Merge, []byte(p.mergeScript(f)), 0o755); err != nil {
+		if err := writeAtomic(f.Merge, []byte(p.mergeScript(f)), 0o777); err != nil {
 			return Files{}, err
 		}
 	}
 	return f, nil
 }
 
+// writeAtomic writes one of the plan's files whole or not at all (package
+// outfile), with the package prefix on its error.
 func writeAtomic(path string, data []byte, mode os.FileMode) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("slurm: writing %s: %w", path, err)
-	}
-	_, err = tmp.Write(data)
-	if err == nil {
-		err = tmp.Chmod(mode)
-	}
-	if err == nil {
-		err = tmp.Sync()
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), path)
-	}
-	if err != nil {
-		os.Remove(tmp.Name())
-		return fmt.Errorf("slurm: writing %s: %w", path, err)
+	if err := outfile.Write(path, data, mode); err != nil {
+		return fmt.Errorf("slurm: %w", err)
 	}
 	return nil
 }
@@ -442,7 +428,7 @@ func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
-		return "", fmt.Errorf("%w: sbatch %s: %v: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+		return "", fmt.Errorf("%w: sbatch %s: %w: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
 	}
 	// --parsable prints "JID" or "JID;CLUSTER".
 	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")

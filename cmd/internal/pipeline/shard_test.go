@@ -1,0 +1,117 @@
+package pipeline
+
+import (
+	"encoding/json"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// notRecorded are the Options fields a shard does not record, each with
+// why: they do not change results.json, scores.csv or the other outputs,
+// or the merge sets them itself.
+var notRecorded = map[string]string{
+	"Out":          "the merge's own --out",
+	"Force":        "the merge's own --force",
+	"Quiet":        "the merge's own --quiet",
+	"Workers":      "results do not depend on it",
+	"ExtentsOnly":  "a shard always scores",
+	"InputsDir":    "the demo's generated inputs; the demo does not shard",
+	"StudyFile":    "its settings are already resolved into the options",
+	"Version":      "compared on its own (ShardHeader.Tool)",
+	"ExpectInputs": "set by the merge from the shards' headers",
+	"MoreInputs":   "set by the merge (the partial files)",
+}
+
+// TestRecordedRunCoversOptions: every field of Options is either recorded
+// by a shard (recordRun, and given back by apply) or listed in notRecorded
+// with a reason, so that a new setting cannot be left out of the merge
+// silently. Each recorded field is set to a non-zero value and must come
+// back through JSON and apply.
+func TestRecordedRunCoversOptions(t *testing.T) {
+	var o Options
+	ov := reflect.ValueOf(&o).Elem()
+	recorded := reflect.TypeOf(recordedRun{})
+	i := 0
+	for _, idx := range reflect.VisibleFields(ov.Type()) {
+		if idx.Anonymous {
+			continue // settings.Values: its fields are checked one by one
+		}
+		i++ // a distinct value per field
+		f := idx
+		_, skip := notRecorded[f.Name]
+		_, rec := recorded.FieldByName(f.Name)
+		switch {
+		case skip && rec:
+			t.Errorf("Options.%s is both recorded and listed in notRecorded", f.Name)
+		case !skip && !rec:
+			t.Errorf("Options.%s is neither recorded by a shard (recordedRun) nor listed in notRecorded", f.Name)
+		case rec:
+			fv := ov.FieldByIndex(f.Index)
+			switch fv.Kind() {
+			case reflect.String:
+				fv.SetString("x=" + f.Name)
+			case reflect.Bool:
+				fv.SetBool(true)
+			case reflect.Int:
+				fv.SetInt(int64(i + 1))
+			case reflect.Uint64:
+				fv.SetUint(uint64(i + 7))
+			case reflect.Float64:
+				fv.SetFloat(float64(i) + 0.25)
+			case reflect.Slice:
+				if fv.Type().Elem().Kind() == reflect.String {
+					fv.Set(reflect.ValueOf([]string{"a=" + f.Name}))
+				} else {
+					fv.Set(reflect.ValueOf([]float64{-1.5, float64(i)}))
+				}
+			default:
+				t.Fatalf("Options.%s: kind %s not handled by this test", f.Name, fv.Kind())
+			}
+		}
+	}
+	b, err := json.Marshal(recordRun(&o))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var back recordedRun
+	if err := json.Unmarshal(b, &back); err != nil {
+		t.Fatal(err)
+	}
+	var got Options
+	back.apply(&got)
+	for _, f := range reflect.VisibleFields(ov.Type()) {
+		name := f.Name
+		if _, skip := notRecorded[name]; skip || f.Anonymous {
+			continue
+		}
+		if !reflect.DeepEqual(ov.FieldByIndex(f.Index).Interface(), reflect.ValueOf(got).FieldByIndex(f.Index).Interface()) {
+			t.Errorf("Options.%s does not come back from the recorded run", name)
+		}
+	}
+}
+
+// TestSettingsHash: the hash ignores paths and the seed (compared on
+// their own) but changes with any setting and with a model's name.
+func TestSettingsHash(t *testing.T) {
+	base := recordedRun{Models: []string{"m=/a/m.tif"}, Occurrences: "/a/o.csv", Region: "/a/r.gpkg", E: []float64{0.05}, Iterations: 100, Seed: 1}
+	h := base.settingsHash()
+	moved := base
+	moved.Models, moved.Occurrences, moved.Region, moved.Seed = []string{"m=/b/m.tif"}, "o.csv", "/b/r.gpkg", 2
+	if moved.settingsHash() != h {
+		t.Error("the hash changed with paths or the seed")
+	}
+	for name, c := range map[string]recordedRun{
+		"iterations": func() recordedRun { c := base; c.Iterations = 101; return c }(),
+		"e":          func() recordedRun { c := base; c.E = []float64{0.1}; return c }(),
+		"model name": func() recordedRun { c := base; c.Models = []string{"n=/a/m.tif"}; return c }(),
+		"no-thin":    func() recordedRun { c := base; c.NoThin = true; return c }(),
+	} {
+		if c.settingsHash() == h {
+			t.Errorf("%s: the hash did not change", name)
+		}
+	}
+	if len(h) != 64 || strings.Trim(h, "0123456789abcdef") != "" {
+		t.Errorf("hash %q is not 64 lower-case hex digits", h)
+	}
+}

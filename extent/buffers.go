@@ -1,0 +1,177 @@
+package extent
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/paulmach/orb"
+
+	"areasweep/extent/geodesy"
+	"areasweep/extent/vocab"
+)
+
+// regionBuffers adds the base grown or shrunk by each distance. A cell
+// belongs to a grown member when its centre is inside the base or within d
+// of the base boundary, and to a shrunk member when its centre is inside
+// and farther than |d| from the boundary; distances are geodesic on WGS84
+// to the boundary densified every cell side (boundaryLonLat).
+func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
+	if len(ds) == 0 {
+		b.f.Chains[chainRegion] = []int{0}
+		return nil
+	}
+	ds = sortedUnique(ds)
+	lats, lons := boundaryLonLat(b.g, base)
+	if len(lats) == 0 {
+		return fmt.Errorf("extent: the base region has no boundary off the antimeridian and poles; region buffers are not defined")
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: base region boundary: %w", err)
+	}
+	type buf struct {
+		k   int
+		d   float64 // metres, signed
+		cut int     // index of |d| in cuts
+	}
+	var bufs []buf
+	var chain []int
+	maxD := 0.0
+	for _, d := range ds {
+		if d == 0 {
+			continue
+		}
+		k, err := b.add(Member{ID: "region_" + kmID(d), Kind: string(vocab.KindRegionBuffer), Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
+		if err != nil {
+			return err
+		}
+		bufs = append(bufs, buf{k: k, d: d * 1000})
+		maxD = math.Max(maxD, math.Abs(d)*1000)
+	}
+	// Chain order: shrunk (most negative first), base, grown.
+	for _, bf := range bufs {
+		if bf.d < 0 {
+			chain = append(chain, bf.k)
+		}
+	}
+	chain = append(chain, baseK)
+	b.f.Members[baseK].Chain = chainRegion
+	for _, bf := range bufs {
+		if bf.d > 0 {
+			chain = append(chain, bf.k)
+		}
+	}
+	b.f.Chains[chainRegion] = chain
+	reach := newReach(lats, lons, maxD)
+	var abs []float64
+	for _, bf := range bufs {
+		abs = append(abs, math.Abs(bf.d))
+	}
+	cuts := sortedUnique(abs)
+	for i := range bufs {
+		bufs[i].cut = sort.SearchFloat64s(cuts, math.Abs(bufs[i].d))
+	}
+	baseRows := b.f.cells[baseK].rows
+	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
+		// A grown member is the base or within d of its boundary; a shrunk
+		// one is the base minus the cells within |d|.
+		for _, bf := range bufs {
+			var r rowRuns
+			if bf.d > 0 {
+				r = union(nil, baseRows[row], near[bf.cut])
+			} else {
+				r = minus(nil, baseRows[row], near[bf.cut])
+			}
+			b.f.cells[bf.k].rows[row] = r
+		}
+	})
+	return nil
+}
+
+// boundaryLonLat returns points along the boundary of s every cell side,
+// as WGS84 latitude and longitude. Edges are densified as straight
+// lines in the grid's CRS, the same edges Fill uses to decide which cells
+// are inside, so distances are measured to the boundary that defines the
+// region on the grid. Seam edges (see seamEdge) are left out.
+func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
+	// One cell side: the nearest sample is then within half a side of the
+	// nearest boundary point, so a distance is overestimated by less than
+	// half a cell diagonal, the margin within which a cell may fall either
+	// side of a buffer edge.
+	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
+	var xs, ys []float64
+	for _, p := range s.Grid {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				a, b := r[i-1], r[i]
+				if g.Geographic && seamEdge(a, b) {
+					continue
+				}
+				n := int(math.Ceil(math.Hypot(b[0]-a[0], b[1]-a[1]) / step))
+				n = max(n, 1)
+				for k := 0; k < n; k++ {
+					f := float64(k) / float64(n)
+					xs = append(xs, a[0]+f*(b[0]-a[0]))
+					ys = append(ys, a[1]+f*(b[1]-a[1]))
+				}
+				xs, ys = append(xs, b[0]), append(ys, b[1])
+			}
+		}
+	}
+	lons = make([]float64, len(xs))
+	lats = make([]float64, len(ys))
+	g.ToLonLat(xs, ys, lons, lats)
+	k := 0
+	for i := range lats {
+		if !math.IsNaN(lats[i]) {
+			lats[k], lons[k] = lats[i], lons[i]
+			k++
+		}
+	}
+	return lats[:k], lons[:k]
+}
+
+// seamEdge reports whether the edge a-b runs along the antimeridian or a
+// pole line. Such edges are where a region was cut to fit longitude and
+// latitude ranges, not its boundary on the Earth, so buffer distances are
+// not measured to them: a region split in two at 180 degrees is buffered as
+// the one region it is.
+func seamEdge(a, b orb.Point) bool {
+	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
+	return anti(a[0]) && anti(b[0]) || math.Abs(a[1]) == 90 && a[1] == b[1]
+}
+
+// pointBuffers adds, for each radius, the union of geodesic discs around pts.
+func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
+	ds = sortedUnique(ds)
+	lats, lons := splitLL(pts)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: point buffers: %w", err)
+	}
+	var members []int
+	var dm []float64
+	maxD := 0.0
+	for _, d := range ds {
+		if d <= 0 {
+			return fmt.Errorf("extent: point buffer distance %g km must be positive", d)
+		}
+		k, err := b.add(Member{ID: "points_" + kmID(d), Kind: string(vocab.KindPointBuffer), Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
+		if err != nil {
+			return err
+		}
+		b.f.Chains[chainPoints] = append(b.f.Chains[chainPoints], k)
+		members = append(members, k)
+		dm = append(dm, d*1000)
+		maxD = math.Max(maxD, d*1000)
+	}
+	reach := newReach(lats, lons, maxD)
+	// ds is sorted and unique, so dm is the cut list itself.
+	b.distanceField(ix, reach, maxD, dm, func(row int, near []rowRuns) {
+		for j, k := range members {
+			b.f.cells[k].rows[row] = near[j]
+		}
+	})
+	return nil
+}

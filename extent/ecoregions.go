@@ -1,0 +1,119 @@
+package extent
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent/gdalmsg"
+	"areasweep/extent/vocab"
+)
+
+// ecoregions adds the union of units holding at least k training points,
+// the variant adding units that touch them, and optionally both clipped to
+// the base region.
+func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
+	if spec.EcoregionField == "" {
+		return fmt.Errorf("extent: --ecoregions %s needs --ecoregion-field NAME (the unit id field)", spec.Ecoregions)
+	}
+	k := spec.EcoregionMinPoints
+	if k < 1 {
+		k = 1
+	}
+	units, warns, err := ReadUnits(spec.Ecoregions, spec.EcoregionField, b.g)
+	b.f.Warnings = append(b.f.Warnings, warns...)
+	if err != nil {
+		return err
+	}
+	// Training points in grid CRS.
+	lats, lons := splitLL(spec.Train)
+	xs := make([]float64, len(lons))
+	ys := make([]float64, len(lats))
+	b.g.FromLonLat(lons, lats, xs, ys)
+	counts := make([]int, len(units))
+	for i, u := range units {
+		for j := range xs {
+			if !math.IsNaN(xs[j]) && Contains(b.g, u.Shape.Grid, xs[j], ys[j]) {
+				counts[i]++
+			}
+		}
+	}
+	var selected, touching []int
+	var sel *godal.Geometry
+	for i, c := range counts {
+		if c >= k {
+			selected = append(selected, i)
+			if sel == nil {
+				sel = units[i].geom
+			} else if sel, err = sel.Union(units[i].geom); err != nil {
+				return fmt.Errorf("extent: %s: union of units failed (%s); check the unit geometries in a GIS", spec.Ecoregions, gdalmsg.Cause(err.Error()))
+			}
+		}
+	}
+	if len(selected) == 0 {
+		b.f.Warnings = append(b.f.Warnings, fmt.Sprintf("no unit of %s holds %d or more training points; no ecoregion extents", spec.Ecoregions, k))
+		return nil
+	}
+	for i := range units {
+		if counts[i] >= k {
+			continue
+		}
+		hit, err := units[i].geom.Intersects(sel)
+		if err != nil {
+			return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
+		}
+		if hit {
+			touching = append(touching, i)
+		}
+	}
+	ids := func(ix []int) string {
+		s := ""
+		for n, i := range ix {
+			if n > 0 {
+				s += ","
+			}
+			s += units[i].ID
+		}
+		return s
+	}
+	type variant struct {
+		id, params string
+		units      []int
+		clip       bool
+	}
+	name := fmt.Sprintf("ecoregions_k%d", k)
+	vs := []variant{
+		{name, fmt.Sprintf("min_points=%d; units=%s", k, ids(selected)), selected, false},
+		{name + "_touching", fmt.Sprintf("min_points=%d; plus touching units=%s", k, ids(touching)), append(append([]int{}, selected...), touching...), false},
+	}
+	if spec.EcoregionClip {
+		vs = append(vs, variant{vs[0].id + "_clipped", vs[0].params + "; clipped to base", selected, true},
+			variant{vs[1].id + "_clipped", vs[1].params + "; clipped to base", vs[1].units, true})
+	}
+	for _, v := range vs {
+		chain := chainEcoregions
+		if v.clip {
+			chain = chainEcoregions + "_clipped"
+		}
+		k, err := b.add(Member{ID: v.id, Kind: string(vocab.KindEcoregions), Params: v.params, Chain: chain})
+		if err != nil {
+			return err
+		}
+		b.f.Chains[chain] = append(b.f.Chains[chain], k)
+		rows := b.f.cells[k].rows
+		for _, ui := range v.units {
+			Fill(b.g, units[ui].Shape.Grid, func(row, c0, c1 int) {
+				rows[row] = append(rows[row], int32(c0), int32(c1))
+			})
+		}
+		baseRows := b.f.cells[baseK].rows
+		for r := range rows {
+			rows[r] = canonical(rows[r])
+			if v.clip {
+				rows[r] = intersect(nil, rows[r], baseRows[r])
+			}
+		}
+	}
+	return nil
+}

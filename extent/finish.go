@@ -1,0 +1,210 @@
+package extent
+
+import (
+	"fmt"
+	"runtime"
+	"slices"
+	"sort"
+	"sync"
+	"sync/atomic"
+
+	"areasweep/extent/vocab"
+)
+
+// Clip restricts the family to the valid cells and measures it again:
+// cells, areas, shares and points inside, members that became empty or
+// equal to another, and chain nesting. Members already empty or duplicate
+// stay so.
+func (f *Family) Clip(valid Valid, trainCells, testCells []int) {
+	for k := range f.Members {
+		m := &f.Members[k]
+		m.Cells, m.AreaKm2, m.Share, m.TrainPoints, m.TestPoints = 0, 0, 0, 0, 0
+	}
+	b := &builder{g: f.Grid, valid: valid, f: f}
+	b.finish(trainCells, testCells)
+}
+
+// finish clips every member to the valid cells, measures it, counts
+// points, marks empty and duplicate members, and checks chain nesting.
+// Members whose Status is not ok keep it and are not reported again.
+//
+// Members are independent, so they are clipped and measured in parallel;
+// each member's area is still summed cell by cell in cell order (the same
+// float64 sum whatever the number of cores).
+func (b *builder) finish(trainCells, testCells []int) {
+	f, g := b.f, b.g
+	n := len(f.Members)
+	cells := make([]int64, n)
+	area := make([]float64, n)
+	total := 0.0
+	// Without the valid cells the family is not yet clipped: Clip will
+	// measure it, so areas are not summed twice.
+	measure := b.valid != nil
+	var wg sync.WaitGroup
+	if measure {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			total = b.validArea()
+		}()
+	}
+	var next atomic.Int64
+	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var areas []float64
+			for {
+				k := int(next.Add(1) - 1)
+				if k >= n {
+					return
+				}
+				rows := f.cells[k].rows
+				for row, r := range rows {
+					if b.valid != nil && len(r) > 0 {
+						r = clipValid(nil, r, b.valid, row*g.Width)
+						rows[row] = r
+					}
+					cells[k] += r.cells()
+					if !measure || len(r) == 0 {
+						continue
+					}
+					// One float64 sum per member, cell after cell in cell
+					// order; in rows of equal cells repeatAdd gives that
+					// sum without doing each addition.
+					a := area[k]
+					if same, ok := g.rowArea(row); ok {
+						for i := 0; i < len(r); i += 2 {
+							a = repeatAdd(a, same, int(r[i+1]-r[i]))
+						}
+					} else {
+						for i := 0; i < len(r); i += 2 {
+							areas = g.RowAreasRange(row, int(r[i]), int(r[i+1]), areas)
+							for _, x := range areas {
+								a += x
+							}
+						}
+					}
+					area[k] = a
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	for k := range f.Members {
+		f.Members[k].Cells = cells[k]
+		f.Members[k].AreaKm2 = area[k]
+		if total > 0 {
+			f.Members[k].Share = area[k] / total
+		}
+	}
+	for k := range f.Members {
+		m := &f.Members[k]
+		if m.Status != vocab.StatusOK {
+			continue
+		}
+		if m.Cells == 0 {
+			m.Status = vocab.StatusEmpty
+			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell; not scored", m.ID))
+			continue
+		}
+		for j := 0; j < k; j++ {
+			if f.Members[j].Status == vocab.StatusOK && cells[j] == cells[k] && b.sameCells(j, k) {
+				m.Status = vocab.StatusDuplicate
+				m.DuplicateOf = f.Members[j].ID
+				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s has exactly the cells of %s; scored once, under %s", m.ID, f.Members[j].ID, f.Members[j].ID))
+				break
+			}
+		}
+	}
+	// Members that are not ok hold no cell.
+	for k := range f.Members {
+		if f.Members[k].Status != vocab.StatusOK {
+			f.cells[k] = cellRuns{rows: make([]rowRuns, g.Height)}
+		}
+	}
+	for _, ci := range trainCells {
+		if ci >= 0 {
+			for k := range f.Members {
+				if f.Has(k, ci) {
+					f.Members[k].TrainPoints++
+				}
+			}
+		}
+	}
+	for _, ci := range testCells {
+		if ci >= 0 {
+			for k := range f.Members {
+				if f.Has(k, ci) {
+					f.Members[k].TestPoints++
+				}
+			}
+		}
+	}
+	// Chains: keep only members with Status ok, and check nesting.
+	names := make([]string, 0, len(f.Chains))
+	for name := range f.Chains {
+		names = append(names, name)
+	}
+	sort.Strings(names)
+	for _, name := range names {
+		var kept []int
+		for _, k := range f.Chains[name] {
+			if f.Members[k].Status == vocab.StatusOK {
+				kept = append(kept, k)
+			}
+		}
+		for i := 1; i < len(kept); i++ {
+			if !f.nested(kept[i-1], kept[i]) {
+				f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s is not inside %s; the %s chain is cut there", f.Members[kept[i-1]].ID, f.Members[kept[i]].ID, name))
+				kept = kept[:i]
+				break
+			}
+		}
+		if len(kept) < 2 {
+			delete(f.Chains, name)
+			continue
+		}
+		f.Chains[name] = kept
+		for _, k := range kept {
+			f.Members[k].Chain = name
+		}
+	}
+	for k := range f.Members {
+		if f.Members[k].Chain != "" {
+			if _, ok := f.Chains[f.Members[k].Chain]; !ok {
+				f.Members[k].Chain = ""
+			}
+		}
+	}
+}
+
+// validArea is the area of all valid cells (every cell when valid is nil),
+// summed cell by cell in cell order.
+func (b *builder) validArea() float64 {
+	g := b.g
+	total := 0.0
+	areas := make([]float64, g.Width)
+	for row := 0; row < g.Height; row++ {
+		areas = g.RowAreas(row, areas)
+		base := row * g.Width
+		for c, a := range areas {
+			if b.valid.Has(base + c) {
+				total += a
+			}
+		}
+	}
+	return total
+}
+
+// sameCells reports whether members j and k hold the same cells. Runs are
+// canonical, so equal cells mean equal runs row by row.
+func (b *builder) sameCells(j, k int) bool {
+	rj, rk := b.f.cells[j].rows, b.f.cells[k].rows
+	for row := range rj {
+		if !slices.Equal(rj[row], rk[row]) {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,79 @@
+package extent
+
+import (
+	"fmt"
+	"os"
+
+	"github.com/airbusgeo/godal"
+)
+
+// LayerField is an attribute column of a GeoPackage layer.
+type LayerField struct {
+	Name string
+	Type godal.FieldType
+}
+
+// Feature is one feature to write: its geometry as WKB, in the layer's
+// CRS, and one value per field in field order (string, int, int64 or
+// float64).
+type Feature struct {
+	WKB    []byte
+	Values []any
+}
+
+// WriteLayer writes a new GeoPackage at path (which must not exist) with
+// one layer, name, of geometry type gtype in the CRS srs, with the given
+// fields and features in order. It is the program's one GeoPackage
+// writer: the extents (WriteGeoPackage) and the omitted test points use
+// it. The file's timestamp is the process's OGR_CURRENT_DATE (Configure
+// fixes it, so the same features give the same bytes).
+func WriteLayer(path, name string, srs *godal.SpatialRef, gtype godal.GeometryType, fields []LayerField, feats []Feature) error {
+	Register()
+	if _, err := os.Stat(path); err == nil {
+		return fmt.Errorf("extent: %s exists", path)
+	}
+	ds, err := godal.CreateVector(godal.GeoPackage, path)
+	if err != nil {
+		return fmt.Errorf("extent: create %s: %w", path, err)
+	}
+	opts := make([]godal.CreateLayerOption, len(fields))
+	for i, fd := range fields {
+		opts[i] = godal.NewFieldDefinition(fd.Name, fd.Type)
+	}
+	layer, err := ds.CreateLayer(name, srs, gtype, opts...)
+	if err != nil {
+		ds.Close()
+		return fmt.Errorf("extent: create layer %s in %s: %w", name, path, err)
+	}
+	for n, f := range feats {
+		if err := writeFeature(layer, srs, fields, f); err != nil {
+			ds.Close()
+			return fmt.Errorf("extent: write feature %d of %s to %s: %w", n+1, name, path, err)
+		}
+	}
+	if err := ds.Close(); err != nil {
+		return fmt.Errorf("extent: close %s: %w", path, err)
+	}
+	return nil
+}
+
+// writeFeature adds one feature to layer.
+func writeFeature(layer godal.Layer, srs *godal.SpatialRef, fields []LayerField, f Feature) error {
+	geom, err := godal.NewGeometryFromWKB(f.WKB, srs)
+	if err != nil {
+		return err
+	}
+	ft, err := layer.NewFeature(geom)
+	geom.Close()
+	if err != nil {
+		return err
+	}
+	defer ft.Close()
+	fl := ft.Fields()
+	for i, fd := range fields {
+		if err := ft.SetFieldValue(fl[fd.Name], f.Values[i]); err != nil {
+			return fmt.Errorf("field %s: %w", fd.Name, err)
+		}
+	}
+	return layer.UpdateFeature(ft)
+}

@@ -1,0 +1,427 @@
+package report
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"areasweep/metrics"
+)
+
+// analysisView is the page's Analysis section. Optional parts are nil
+// when the run has none.
+type analysisView struct {
+	BaseExtent      string
+	PairedResamples int
+	ModelVerdicts   []badge
+	Differences     htmlTable
+	Rankings        *sentencesTable
+	Spread          htmlTable
+	Decomposition   *decompositionView
+	Chains          *chainsView
+	Truncation      []string
+	AboveNull       *aboveNullView
+	// IndependenceSentence is always shown; Independence only when defined.
+	IndependenceSentence string
+	Independence         *htmlTable
+	SortingBias          *notedTable
+	Omitted              htmlTable
+}
+
+// sentencesTable is a list of sentences followed by a table.
+type sentencesTable struct {
+	Sentences []string
+	Table     htmlTable
+}
+
+type decompositionView struct {
+	Table htmlTable
+	// Ranking is the order of the models by AUC per extent, if any.
+	Ranking *htmlTable
+}
+
+type chainsView struct {
+	Sentences     []string
+	Steps, Slopes htmlTable
+}
+
+type aboveNullView struct {
+	Sentences []string
+	Note      string
+	Table     htmlTable
+}
+
+func analysisSection(r *Results) analysisView {
+	s := r.Sensitivity
+	label := map[string]string{}
+	for _, m := range s.Metrics {
+		label[m.Key] = m.Label
+	}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples}
+	// Verdicts with every paired difference from the base extent.
+	var rows [][]cell
+	for _, mv := range s.ModelVerdicts {
+		v.ModelVerdicts = append(v.ModelVerdicts, verdictBadge(mv.Verdict, mv.Sentence))
+		for _, d := range mv.Diffs {
+			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
+			if !d.Defined {
+				row = append(row, dash, dash, dash, dash, tc("undefined"))
+				rows = append(rows, row)
+				continue
+			}
+			row = append(row, nc(d.Diff, 4), cell{text: f4(d.Low) + " to " + f4(d.High), num: d.Low, isN: true, cls: "n"},
+				tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc(d.Position))
+			rows = append(rows, row)
+		}
+	}
+	v.Differences = table("tbl-differences", []string{"metric", "model", "extent", "test points", "common", "difference", "95% interval", "method", "test-set shift", "against tolerance"}, rows)
+
+	// Model comparisons.
+	if len(s.Rankings) > 0 {
+		st := &sentencesTable{}
+		rows = nil
+		for _, rk := range s.Rankings {
+			st.Sentences = append(st.Sentences, rk.Sentence)
+			rows = append(rows, []cell{tc(label[rk.Metric]), tc(rk.Model + " − " + rk.Other), ic(rk.Extents), ic(rk.Better), ic(rk.Worse), ic(rk.WithinNoise)})
+		}
+		st.Table = table("tbl-model-differences", []string{"metric", "models", "extents", "better beyond noise", "worse beyond noise", "within noise"}, rows)
+		v.Rankings = st
+	}
+
+	// Spread (description).
+	rows = nil
+	for _, sp := range s.Spreads {
+		row := []cell{tc(label[sp.Metric]), tc(sp.Model), ic(sp.N)}
+		if sp.N == 0 {
+			row = append(row, dash, dash, dash, dash)
+			rows = append(rows, row)
+			continue
+		}
+		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3), defNum(sp.SD, sp.SDDefined, 3))
+		rows = append(rows, row)
+	}
+	v.Spread = table("tbl-spread", []string{"metric", "model", "extents scored", "minimum", "maximum", "range", "SD across extents"}, rows)
+
+	v.Decomposition = decompositionSection(s, label)
+	v.Chains = chainsSection(s)
+	v.Truncation = []string{}
+	for _, t := range s.Truncation {
+		v.Truncation = append(v.Truncation, t.Sentence)
+	}
+
+	// Models against the nulls, every metric.
+	if rows := aboveNullRows(r); len(rows) > 0 {
+		an := &aboveNullView{Note: aboveNullNote}
+		for _, x := range s.AboveNull {
+			an.Sentences = append(an.Sentences, x.Sentence)
+		}
+		an.Table = table("tbl-above-null", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+		v.AboveNull = an
+	}
+
+	// Independence.
+	ind := s.Independence
+	v.IndependenceSentence = ind.Sentence
+	if ind.Defined {
+		v.Independence = &htmlTable{ID: "tbl-independence", Caption: "Distance from each test point to the nearest training point (km)",
+			Head: []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
+			Rows: [][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}}}
+	}
+	if sb := sortingBiasRows(r); len(sb) > 0 {
+		v.SortingBias = &notedTable{Note: sortingBiasNote, Table: htmlTable{ID: "tbl-sorting-bias",
+			Caption: "Distance to the nearest training point: test points against the extent's cells",
+			Head: []string{"extent", "area",
+				"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"},
+			Rows: sb}}
+	}
+
+	// Where errors fall.
+	rows = nil
+	for _, o := range s.OmittedPoints {
+		ids := make([]string, len(o.IDs))
+		for i, id := range o.IDs {
+			ids[i] = strconv.Itoa(id)
+		}
+		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(strings.Join(ids, ", "))})
+	}
+	v.Omitted = table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
+	return v
+}
+
+// decompositionSection is the sums-of-squares table and the order of the
+// models by AUC per extent; nil without decompositions.
+func decompositionSection(s *Sensitivity, label map[string]string) *decompositionView {
+	if len(s.Decompositions) == 0 {
+		return nil
+	}
+	var rows [][]cell
+	for _, d := range s.Decompositions {
+		row := []cell{tc(label[d.Metric]), ic(len(d.Extents))}
+		if d.Defined {
+			row = append(row, nc(100*d.ShareExtent, 0), nc(100*d.ShareModel, 0), nc(100*d.ShareResidual, 0))
+		} else {
+			row = append(row, dash, dash, dash)
+		}
+		row = append(row, defNum(d.KendallW, d.KendallWDefined, 3))
+		row = append(row, tc(d.BaseExtent), tc(strings.Join(d.DiffersFromBase, ", ")))
+		rows = append(rows, row)
+	}
+	v := &decompositionView{Table: table("tbl-decomposition", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "base extent", "order differs on"}, rows)}
+	d := s.findDecomposition("auc")
+	if d == nil || len(d.Rankings) == 0 {
+		return v
+	}
+	rows = nil
+	for _, er := range d.Rankings {
+		row := []cell{tc(er.Extent)}
+		for _, rk := range er.Ranks {
+			row = append(row, nc(rk, 1))
+		}
+		row = append(row, tc(strings.Join(er.Order, " > ")), tc(yesNo(er.DiffersFromBase)))
+		rows = append(rows, row)
+	}
+	head := []string{"extent"}
+	for _, m := range d.Models {
+		head = append(head, "rank of "+m)
+	}
+	head = append(head, "order (best first)", "differs from "+d.BaseExtent)
+	t := table("tbl-ranking", head, rows)
+	v.Ranking = &t
+	return v
+}
+
+// chainsSection is the nested rings' sentences, steps and slopes; nil
+// without chains.
+func chainsSection(s *Sensitivity) *chainsView {
+	if len(s.Chains) == 0 {
+		return nil
+	}
+	v := &chainsView{}
+	var rows [][]cell
+	for _, c := range s.Chains {
+		v.Sentences = append(v.Sentences, c.Sentence)
+		for _, st := range c.Steps {
+			what := "ring " + st.Outer + " − " + st.Inner
+			if st.Kind == StepTestPoints {
+				what = "test points entering with " + st.Outer
+			}
+			row := []cell{tc(c.Chain), tc(c.Model), tc(what)}
+			if st.Kind == StepRing {
+				row = append(row, areaCell(st.RingAreaKm2), defNum(st.AUCRing, st.AUCRingDefined, 3))
+			} else {
+				row = append(row, dash, dash)
+			}
+			row = append(row, nc(st.AUCInner, 3), nc(st.AUCOuter, 3), nc(st.Change, 4), defNum(100*st.Share, c.SharesDefined, 0))
+			rows = append(rows, row)
+		}
+	}
+	v.Steps = table("tbl-chains", []string{"nested chain", "model", "step", "ring area (km²)", "AUC of the ring alone", "AUC before", "AUC after", "change", "share of the chain's change (%)"}, rows)
+	rows = nil
+	for _, c := range s.Chains {
+		rows = append(rows, []cell{tc(c.Chain), tc(c.Model), ic(c.Slope.N), defNum(c.Slope.PerDoubling, c.Slope.Defined, 4), defNum(c.Slope.R2, c.Slope.R2Defined, 2)})
+	}
+	v.Slopes = table("tbl-chain-slopes", []string{"nested chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
+	return v
+}
+
+func yesNo(b bool) string {
+	if b {
+		return "yes"
+	}
+	return "no"
+}
+
+func f4(v float64) string {
+	s := strconv.FormatFloat(v, 'f', 4, 64)
+	if s == "-0.0000" {
+		s = "0.0000"
+	}
+	return s
+}
+
+func defNum(v float64, ok bool, dec int) cell {
+	if !ok {
+		return dash
+	}
+	return nc(v, dec)
+}
+
+// ruleName spells out a threshold rule: "minimum training presence",
+// "10th percentile training presence" or "fixed cut 0.5".
+func ruleName(t Threshold) string {
+	if t.Name == metrics.ThresholdFixed {
+		return "fixed cut " + fmtG(t.Value)
+	}
+	return thresholdLabel(t.Name)
+}
+
+// formedPartialROC reports whether at least one bootstrap resample formed a
+// partial ROC ratio.
+func formedPartialROC(pr PartialROC) bool {
+	return !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations)
+}
+
+// scoresView is the page's Scores section: three long tables.
+type scoresView struct {
+	Iterations      int
+	ResamplePercent string
+	Main            htmlTable
+	PartialROC      htmlTable
+	Thresholds      htmlTable
+}
+
+// scoresSection makes the scores as three long tables: the scores with
+// one value per model and extent, the partial ROC results (one row per
+// model, extent and E) and the threshold tests (one row per model, extent
+// and rule).
+func scoresSection(r *Results) scoresView {
+	st := r.Settings
+	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction)}
+	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
+		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
+	var rows [][]cell
+	for _, sc := range r.Scores {
+		row := []cell{tc(modelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
+		if !sc.Scored {
+			row = append(row, dash, dash, tc("no: "+sc.NotScored))
+			for len(row) < len(head) {
+				row = append(row, dash)
+			}
+			rows = append(rows, row)
+			continue
+		}
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCSE, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
+		if sc.Boyce != nil {
+			row = append(row, nc(sc.Boyce.Index, 3))
+		} else {
+			row = append(row, dash)
+		}
+		rows = append(rows, row)
+	}
+	v.Main = table("tbl-scores", head, rows)
+
+	head = []string{"model", "extent", "E", "partial ROC ratio, full sample", "partial ROC ratio, resample mean", "2.5th to 97.5th percentile of resamples", "share of resamples at or below 1 (P)", "resamples formed"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			row := []cell{tc(sc.Model), tc(sc.Extent), nc(pr.E, 2)}
+			full := nc(pr.Ratio, 3)
+			if !pr.Defined {
+				full = cell{text: "undefined: " + pr.Reason}
+			}
+			if !formedPartialROC(pr) {
+				row = append(row, full, dash, dash, dash)
+			} else {
+				row = append(row, full, nc(pr.RatioMean, 3),
+					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},
+					cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
+			}
+			row = append(row, cell{text: fmt.Sprintf("%d of %d", pr.Iterations-pr.NotFormed, pr.Iterations), num: float64(pr.Iterations - pr.NotFormed), isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	v.PartialROC = table("tbl-partial-roc", head, rows)
+
+	head = []string{"model", "extent", "rule", "cut value", "test records missed (k of n)", "share missed", "share of the extent at or above the cut", "one-sided binomial P"}
+	rows = nil
+	for _, sc := range r.Scores {
+		if !sc.Scored {
+			continue
+		}
+		for _, t := range sc.Thresholds {
+			missed := t.N - t.Successes
+			row := []cell{tc(sc.Model), tc(sc.Extent), tc(ruleName(t)), nc(t.Value, 4),
+				cell{text: fmt.Sprintf("%d of %d", missed, t.N), num: float64(missed), isN: true, cls: "n"}}
+			if t.N > 0 {
+				row = append(row, nc(t.Omission, 3))
+			} else {
+				row = append(row, dash)
+			}
+			row = append(row, nc(t.AreaFraction, 3), cell{text: fmtP(t.PBinomial), num: t.PBinomial, isN: true, cls: "n"})
+			rows = append(rows, row)
+		}
+	}
+	v.Thresholds = table("tbl-thresholds", head, rows)
+	return v
+}
+
+// extentsView is the page's Extents section.
+type extentsView struct {
+	Table    htmlTable
+	Skipped  []SkippedExtent
+	Unscored []UnscoredScore
+}
+
+func extentsSection(r *Results) extentsView {
+	s := r.Sensitivity
+	var rows [][]cell
+	for _, e := range r.Extents {
+		status := string(e.Status)
+		if e.DuplicateOf != "" {
+			status += " of " + e.DuplicateOf
+		}
+		rows = append(rows, []cell{tc(e.ID), tc(e.Kind), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
+			areaCell(e.AreaKm2), nc(e.ShareOfRaster, 3), ic(e.TrainPoints), ic(e.TestPoints), tc(status)})
+	}
+	return extentsView{
+		Table:    table("tbl-extents", []string{"id", "kind", "parameters", "nested chain", "cells", "area (km²)", "share of the raster", "training records inside", "test records inside", "status"}, rows),
+		Skipped:  s.SkippedExtents,
+		Unscored: s.Unscored,
+	}
+}
+
+// settingsView is the page's Settings and inputs section.
+type settingsView struct{ Settings, Inputs, Models htmlTable }
+
+func settingsSection(r *Results) settingsView {
+	st := r.Settings
+	fl := func(v []float64) string {
+		if len(v) == 0 {
+			return "none"
+		}
+		return fmtList(v, "")
+	}
+	rows := [][]cell{
+		{tc("software"), tc(strings.TrimSpace(r.Software.Name + " " + r.Software.Version))},
+		{tc("seed"), tc(strconv.FormatUint(r.Seed, 10))},
+		{tc("region buffers (km)"), tc(fl(st.RegionBuffersKm))},
+		{tc("point buffers (km)"), tc(fl(st.PointBuffersKm))},
+		{tc("point buffers around all points"), tc(yesNo(st.PointBufferAll))},
+		{tc("hull buffers (km)"), tc(fl(st.HullBuffersKm))},
+		{tc("ecoregion minimum points"), tc(strconv.Itoa(st.EcoregionMinPoints))},
+		{tc("ecoregion field"), tc(st.EcoregionField)},
+		{tc("partial ROC E"), tc(fl(st.E))},
+		{tc("bootstrap iterations (published partial ROC bootstrap)"), tc(strconv.Itoa(st.Iterations))},
+		{tc("resample fraction (published partial ROC bootstrap)"), tc(fmtG(st.ResampleFraction))},
+		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
+		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},
+		{tc("fixed thresholds"), tc(fl(st.FixedThresholds))},
+		{tc("thin to one record per cell"), tc(yesNo(st.ThinPerCell))},
+		{tc("Boyce window"), tc(fmtG(st.BoyceWindow))},
+		{tc("Boyce steps"), tc(strconv.Itoa(st.BoyceSteps))},
+		{tc("grid"), tc(fmt.Sprintf("%d × %d cells, %s", r.Grid.Width, r.Grid.Height, r.Grid.CRS))},
+		{tc("geotransform"), tc(fmt.Sprintf("%v", r.Grid.GeoTransform))},
+		{tc("cell areas"), tc(r.Grid.CellAreaNote)},
+		{tc("points"), tc(fmt.Sprintf("%d train, %d test, %d thinned, %d outside raster, %d on no data",
+			r.PointCounts.Train, r.PointCounts.Test, r.PointCounts.Thinned, r.PointCounts.OutsideRaster, r.PointCounts.NoData))},
+		{tc("analysis cut-offs (our choices)"), tc(fmt.Sprintf("floor flag ≥ %s of area; tie-tail flag > %g of the area axis; near = within %g cells, warn above %s",
+			pct(FloorShareFlag), TailJumpFlag, NearCells, pct(NearShareWarn)))},
+	}
+	var in [][]cell
+	for _, i := range r.Inputs {
+		in = append(in, []cell{tc(i.Role), tc(i.Path), {text: i.SHA256, cls: "mono"}})
+	}
+	var ms [][]cell
+	for _, m := range r.Models {
+		ms = append(ms, []cell{tc(modelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
+	}
+	return settingsView{
+		Settings: table("tbl-settings", []string{"setting", "value"}, rows),
+		Inputs:   table("tbl-inputs", []string{"role", "path", "SHA-256"}, in),
+		Models:   table("tbl-models", []string{"model", "path", "minimum", "maximum", "share of area at minimum"}, ms),
+	}
+}

@@ -1,0 +1,50 @@
+// Package outfile writes areasweep's output files whole or not at all:
+// through a temporary file in the same folder, synced, given its mode and
+// renamed over the path, so a reader (or a run stopped half-way) never
+// sees half a file. It is the one such writer of the program (the report,
+// the pipeline's tables and logs, the scheduler's scripts), pure Go.
+package outfile
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"syscall"
+)
+
+// Umask is the process umask, read once at start: files are created with
+// perm &^ Umask, like touch(1) does.
+var Umask = readUmask()
+
+func readUmask() os.FileMode {
+	m := syscall.Umask(0)
+	syscall.Umask(m)
+	return os.FileMode(m)
+}
+
+// Write writes data to path atomically with mode perm &^ Umask (0o666 for
+// a data file, 0o777 for a script).
+func Write(path string, data []byte, perm os.FileMode) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	_, err = tmp.Write(data)
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if err == nil {
+		err = tmp.Chmod(perm &^ Umask)
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), path)
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return nil
+}

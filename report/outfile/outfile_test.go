@@ -1,0 +1,48 @@
+package outfile
+
+import (
+	"errors"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"syscall"
+	"testing"
+)
+
+// TestWrite: the file holds the data with mode perm &^ umask, replaces an
+// older file whole, leaves no temporary file, and a failure (missing
+// folder) leaves nothing and keeps the cause in the error chain.
+func TestWrite(t *testing.T) {
+	old := syscall.Umask(0o027)
+	defer syscall.Umask(old)
+	saved := Umask
+	Umask = 0o027
+	defer func() { Umask = saved }()
+	dir := t.TempDir()
+	p := filepath.Join(dir, "a.txt")
+	for _, data := range []string{"first version, longer", "second"} {
+		if err := Write(p, []byte(data), 0o666); err != nil {
+			t.Fatal(err)
+		}
+		b, err := os.ReadFile(p)
+		if err != nil || string(b) != data {
+			t.Fatalf("read %q %v, want %q", b, err, data)
+		}
+	}
+	if st, _ := os.Stat(p); st.Mode().Perm() != 0o640 {
+		t.Errorf("mode %v, want 0640 (0666 &^ 027)", st.Mode().Perm())
+	}
+	if err := Write(filepath.Join(dir, "s.sh"), []byte("#!/bin/sh\n"), 0o777); err != nil {
+		t.Fatal(err)
+	}
+	if st, _ := os.Stat(filepath.Join(dir, "s.sh")); st.Mode().Perm() != 0o750 {
+		t.Errorf("script mode %v, want 0750", st.Mode().Perm())
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
+		t.Errorf("folder holds %d entries, want 2 (no temporary file left)", len(entries))
+	}
+	err := Write(filepath.Join(dir, "missing", "b.txt"), []byte("x"), 0o666)
+	if !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("write into a missing folder: %v, want a not-exist cause", err)
+	}
+}

@@ -1,0 +1,81 @@
+package report
+
+import (
+	"bytes"
+	"flag"
+	"os"
+	"path/filepath"
+	"testing"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden pages in testdata/page from the current renderer")
+
+// goldenPage is a Results and the methods text shown with it.
+type goldenPage struct {
+	r       *Results
+	methods string
+}
+
+// goldenPages are the Results whose report.html is kept in testdata/page,
+// without figures (their files are checked by the figure tests).
+func goldenPages(t *testing.T) map[string]goldenPage {
+	t.Helper()
+	// Text that needs escaping wherever a string reaches the page: in
+	// text, in <title>, in a table cell, in the methods <pre>.
+	r := analyzedSample(t)
+	bad := `<b>&amp; "q" 'a' +1 </script><!--`
+	r.Software.Name = bad
+	r.Sensitivity.Headline = bad
+	r.Warnings = []string{bad, "second +0.1"}
+	r.Sensitivity.Warnings = []string{bad}
+	r.Settings.EcoregionField = bad
+	r.Grid.CRS = bad
+	r.Inputs = append(r.Inputs, Input{Role: bad, Path: bad, SHA256: bad})
+	v := r.Sensitivity.Verdicts[0]
+	v.Verdict, v.Sentence = Judgement(bad), bad
+	r.Sensitivity.Verdicts = append(r.Sensitivity.Verdicts, v)
+
+	// Every optional part absent.
+	bare := analyzedSample(t)
+	s := bare.Sensitivity
+	s.Rankings, s.Decompositions, s.Chains, s.AboveNull = nil, nil, nil, nil
+	s.SkippedExtents, s.Unscored, s.Warnings, bare.Warnings = nil, nil, nil, nil
+	s.Independence.Defined = false
+	return map[string]goldenPage{"escapes": {r, bad + "\nmethods + more"}, "bare": {bare, ""}}
+}
+
+// TestPageGolden compares report.html with the golden pages byte for byte.
+// The goldens are our own output, not an outside reference: they were
+// written by the fmt-based renderer that html/template replaced, and the
+// template renderer reproduced them exactly (as it did the demo's page and
+// the sample's and null sample's pages with figures). Rewrite them with
+// go test ./report/ -run TestPageGolden -update after a deliberate change
+// to the page, and read the diff.
+func TestPageGolden(t *testing.T) {
+	for name, c := range goldenPages(t) {
+		got, err := htmlPage(c.r, nil, c.methods)
+		if err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join("testdata", "page", name+".html")
+		if *update {
+			if err := os.WriteFile(path, got, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			continue
+		}
+		want, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(got, want) {
+			i := 0
+			for i < len(got) && i < len(want) && got[i] == want[i] {
+				i++
+			}
+			lo := max(0, i-80)
+			t.Errorf("%s: page differs from %s at byte %d:\n got ...%q\nwant ...%q", name, path, i,
+				got[lo:min(len(got), i+80)], want[lo:min(len(want), i+80)])
+		}
+	}
+}

@@ -1,0 +1,115 @@
+package report
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+
+	"areasweep/extent/vocab"
+	"areasweep/metrics"
+)
+
+// teachCell is one model x extent entry of the embedded data.
+type teachCell struct {
+	Model          string    `json:"model"`
+	Extent         string    `json:"extent"`
+	Scored         bool      `json:"scored"`
+	Reason         string    `json:"reason,omitempty"`
+	AUC            float64   `json:"auc"`
+	AUCSD          float64   `json:"auc_sd"`
+	PartialROC     float64   `json:"partial_roc"`
+	PartialROCLow  float64   `json:"partial_roc_low"`
+	PartialROCHigh float64   `json:"partial_roc_high"`
+	PartialROCOK   bool      `json:"partial_roc_ok"`
+	Omission       float64   `json:"omission"`
+	AreaFrac       float64   `json:"area_fraction"`
+	ThreshOK       bool      `json:"threshold_ok"`
+	TestPoints     int       `json:"test_points"`
+	X              []float64 `json:"x"`
+	Y              []float64 `json:"y"`
+}
+
+type teachExtent struct {
+	ID      string  `json:"id"`
+	Kind    string  `json:"kind"`
+	Params  string  `json:"params"`
+	AreaKm2 float64 `json:"area_km2"`
+	Area    string  `json:"area"`
+}
+
+type teachPayload struct {
+	Models  []string      `json:"models"`
+	Extents []teachExtent `json:"extents"`
+	E       float64       `json:"e"`
+	Default string        `json:"default_extent"`
+	Cells   []teachCell   `json:"cells"`
+}
+
+func round4(v float64) float64 { return math.Round(v*1e4) / 1e4 }
+
+// teachData builds the JSON embedded for the extent selector. Curves are
+// rounded to 4 decimals (drawing only).
+func teachData(r *Results) ([]byte, error) {
+	s := r.Sensitivity
+	pl := teachPayload{Models: s.ModelNames, Extents: []teachExtent{}, Cells: []teachCell{}}
+	if pl.Models == nil {
+		pl.Models = []string{}
+	}
+	if len(r.Settings.E) > 0 {
+		pl.E = r.Settings.E[0]
+	}
+	for _, e := range rocExtents(r) {
+		pl.Extents = append(pl.Extents, teachExtent{ID: e.ID, Kind: e.Kind, Params: e.Params, AreaKm2: e.AreaKm2, Area: fmtArea(e.AreaKm2)})
+		if e.ID == vocab.BaseID {
+			pl.Default = e.ID
+		}
+	}
+	if pl.Default == "" && len(pl.Extents) > 0 {
+		pl.Default = pl.Extents[0].ID
+	}
+	for _, m := range pl.Models {
+		for _, e := range pl.Extents {
+			c := teachCell{Model: m, Extent: e.ID, X: []float64{}, Y: []float64{}}
+			var sc *Score
+			for i := range r.Scores {
+				if r.Scores[i].Model == m && r.Scores[i].Extent == e.ID {
+					sc = &r.Scores[i]
+					break
+				}
+			}
+			if sc == nil || !sc.Scored {
+				c.Reason = "no score"
+				if sc != nil && sc.NotScored != "" {
+					c.Reason = sc.NotScored
+				}
+				pl.Cells = append(pl.Cells, c)
+				continue
+			}
+			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
+			for _, pr := range sc.PartialROC {
+				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
+					c.PartialROC, c.PartialROCLow, c.PartialROCHigh, c.PartialROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
+				}
+			}
+			for _, t := range sc.Thresholds {
+				if t.Name == metrics.ThresholdMTP {
+					c.Omission, c.AreaFrac, c.ThreshOK = t.Omission, t.AreaFraction, true
+				}
+			}
+			if cv := findCurve(r, m, e.ID); cv != nil {
+				n := min(len(cv.X), len(cv.Y))
+				for i := 0; i < n; i++ {
+					c.X = append(c.X, round4(cv.X[i]))
+					c.Y = append(c.Y, round4(cv.Y[i]))
+				}
+			}
+			pl.Cells = append(pl.Cells, c)
+		}
+	}
+	// encoding/json escapes <, > and & so the data cannot close the script.
+	b, err := json.Marshal(pl)
+	if err != nil {
+		return nil, fmt.Errorf("report: embed selector data: %w", err)
+	}
+	return b, nil
+}
