@@ -47,7 +47,7 @@ func (s *session) scoreDistanceNull(i int) error {
 		return fmt.Errorf("distance-only null: %w", err)
 	}
 	g := s.grid
-	field := nullmodel.New(ix, pass.CellCentres(g))
+	field := pass.DistanceNull(g, ix)
 	far := field.FarthestBound(g.Width, g.Height, farthestStep)
 	var bg nullmodel.Background
 	fam := s.fam

@@ -9,7 +9,6 @@ import (
 
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
-	"areasweep/extent/nullmodel"
 	"areasweep/metrics"
 )
 
@@ -56,7 +55,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
+	v := NewVirtual(g, DistanceNull(g, ix))
 	var members []extent.Member
 	for _, e := range gd.Extents {
 		members = append(members, extent.Member{ID: e.Name, Status: extent.StatusOK})
@@ -200,7 +199,7 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		return evs, scs
 	}
 	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}), 0, 1)
-	null, _ := evals(NewVirtual(g, nullmodel.New(ix, CellCentres(g))), -3e6, 0)
+	null, _ := evals(NewVirtual(g, DistanceNull(g, ix)), -3e6, 0)
 	d := metrics.Draws{N: len(cells), B: 20, Seed: 7}
 	for k, e := range gd.Extents {
 		if math.Abs(modelScores[k].AUC-e.ModelAUC) > 1e-9 {

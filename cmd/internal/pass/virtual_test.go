@@ -29,7 +29,7 @@ func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := nullmodel.New(ix, CellCentres(g))
+	f := DistanceNull(g, ix)
 	mask := make([]uint64, g.Cells())
 	for i := range mask {
 		if i%97 != 0 {
@@ -86,11 +86,12 @@ func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
 }
 
 // TestVirtualEqualsRaster is the property the null model rests on: a
-// GeoTIFF holding the null's values scores exactly what the virtual null
-// scores (values at the points bit for bit, and every accumulator: area
-// at each layout value, range, cells, area, and all metrics), for 1 and 2
+// GeoTIFF holding the null's exact values (Fill) scores exactly what the
+// virtual null scores from its bounds and midpoints (values at the points
+// bit for bit, and every accumulator: area at each layout value, range,
+// cells, area, and all metrics, the Boyce index included), for 1 and 2
 // workers, although the GeoTIFF's blocks (64 x 64) differ from the
-// virtual's (256 x 256).
+// virtual's (240 x 240).
 func TestVirtualEqualsRaster(t *testing.T) {
 	g, v, f, fam := nullSetup(t)
 	all := make([]float64, g.Cells())
@@ -116,6 +117,19 @@ func TestVirtualEqualsRaster(t *testing.T) {
 	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
 	if err != nil {
 		t.Fatal(err)
+	}
+	// Most cells must take the bounded path (midpoints), or this test
+	// would not test it.
+	lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
+	f.Bounds(0, 0, g.Width, g.Height, nil, layout, lo, hi)
+	bounded := 0
+	for i := range lo {
+		if lo[i] != hi[i] {
+			bounded++
+		}
+	}
+	if bounded < g.Cells()/2 {
+		t.Errorf("%d of %d cells bounded, want most", bounded, g.Cells())
 	}
 	describe := func(accs []*metrics.Accumulator, st Stats) string {
 		s := fmt.Sprint(st)
@@ -221,7 +235,7 @@ func BenchmarkNullPass(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
+	v := NewVirtual(g, DistanceNull(g, ix))
 	layout, err := metrics.NewLayout(lats, -3e6, 0, 4096)
 	if err != nil {
 		b.Fatal(err)
@@ -309,11 +323,11 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 	}
 }
 
-// panicField is a Field with a bug: it panics on the block at column 256.
+// panicField is a Field with a bug: it panics on the second block of a row.
 type panicField struct{}
 
 func (panicField) Fill(x0, y0, w, h int, need []uint64, dst []float64) {
-	if x0 == 256 {
+	if x0 == VirtualBlock {
 		panic("index out of range in a test field")
 	}
 	for i := range dst[:w*h] {
