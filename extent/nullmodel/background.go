@@ -7,20 +7,27 @@ import (
 	"sync"
 )
 
-// lnStep is the natural logarithm of the ratio between consecutive edges of
-// the distance histogram: bins of relative width 1/1000.
-var lnStep = math.Log1p(1e-3)
+// The distance histogram's bins follow the bits of the float64 distance:
+// bin 0 is [0, 1 m), and bin j >= 1 holds the distances whose bit pattern,
+// less that of 1 m, shifted right by 42 bits (the exponent and the top 10
+// bits of the mantissa) is j-1. So each bin is [2^e (1 + m/1024),
+// 2^e (1 + (m+1)/1024)) for some e >= 0 and 0 <= m < 1024: relative width
+// between 1/2048 and 1/1024 (at most 0.098%), found without a logarithm.
+const (
+	binShift = 42
+	oneBits  = 0x3ff0000000000000 // math.Float64bits(1)
+)
 
-// histLen covers distances up to 1e8 m (the longest geodesic on WGS84 is
-// 2.0e7 m): bin 0 is [0, 1 m), bin j >= 1 is [1.001^(j-1), 1.001^j) m.
-var histLen = 2 + int(math.Log(1e8)/lnStep)
+// histLen covers distances up to 2^27 m = 1.3e8 m (the longest geodesic on
+// WGS84 is 2.0e7 m): 27 octaves of 1024 bins, plus bin 0.
+const histLen = 1 + 27<<10
 
 // distBin returns the histogram bin of distance d >= 0 (m).
 func distBin(d float64) int {
 	if d < 1 {
 		return 0
 	}
-	return min(1+int(math.Log(d)/lnStep), histLen-1)
+	return min(1+int((math.Float64bits(d)-oneBits)>>binShift), histLen-1)
 }
 
 // binEdges returns the edges [lo, hi) of histogram bin j, in metres.
@@ -28,18 +35,36 @@ func binEdges(j int) (lo, hi float64) {
 	if j == 0 {
 		return 0, 1
 	}
-	return math.Exp(float64(j-1) * lnStep), math.Exp(float64(j) * lnStep)
+	return math.Float64frombits(oneBits + uint64(j-1)<<binShift), math.Float64frombits(oneBits + uint64(j)<<binShift)
 }
+
+// bgShards is the number of independently locked partial sums of a
+// Background: concurrent Adds take different ones.
+const bgShards = 8
 
 // Background accumulates, for each extent, the area-weighted distribution
 // of the distance from the extent's cell centres to the nearest site: the
 // total area weight, the exact integer sum of weight x distance (each
 // distance rounded to whole millimetres, summed in 128 bits) and a
-// histogram on bins of relative width 1/1000 for the median. Weights are
-// the caller's integer area units. Every sum is an integer, so the result
-// does not depend on the order of the rows. Extents are numbered from 0
-// and tracked as they are first added to. It is safe for concurrent use.
+// histogram on bins of relative width at most 1/1024 for the median.
+// Weights are the caller's integer area units. Every sum is an integer, so
+// the result does not depend on the order of the rows or on which partial
+// sum a row went to. Extents are numbered from 0. It is safe for
+// concurrent use: Add takes the first free one of a few locked partial
+// sums, and the readers merge them.
+//
+// A distance-only null pass (pass.Virtual on a BoundedField) hands it the
+// midpoints of the cells' brackets, each within nullmodel.BracketTol
+// (0.1%) of the cell's distance, so the mean is then within 0.1% of the
+// exact one and the median within 0.2%.
 type Background struct {
+	shards [bgShards]bgShard
+	mu     sync.Mutex
+	merged []bgExtent // after the first read
+	done   bool
+}
+
+type bgShard struct {
 	mu  sync.Mutex
 	ext []bgExtent
 }
@@ -51,14 +76,25 @@ type bgExtent struct {
 }
 
 // Add adds cells of extent k >= 0: distance dist[i] (m; NaN cells are
-// skipped) and area weight weights[i] >= 0.
+// skipped) and area weight weights[i] >= 0. It must not be called after
+// the first read (Area, Mean, Median, SortingBias).
 func (b *Background) Add(k int, dist []float64, weights []int64) {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	if k >= len(b.ext) {
-		b.ext = append(b.ext, make([]bgExtent, k+1-len(b.ext))...)
+	var sh *bgShard
+	for i := range b.shards {
+		if b.shards[i].mu.TryLock() {
+			sh = &b.shards[i]
+			break
+		}
 	}
-	e := &b.ext[k]
+	if sh == nil {
+		sh = &b.shards[k%bgShards]
+		sh.mu.Lock()
+	}
+	defer sh.mu.Unlock()
+	if k >= len(sh.ext) {
+		sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
+	}
+	e := &sh.ext[k]
 	if e.hist == nil {
 		e.hist = make([]int64, histLen)
 	}
@@ -76,10 +112,41 @@ func (b *Background) Add(k int, dist []float64, weights []int64) {
 	}
 }
 
-// get returns extent k's sums (zero when nothing was added to it).
+// get returns extent k's sums, merging the partial sums at the first call
+// (zero when nothing was added to it).
 func (b *Background) get(k int) *bgExtent {
-	if k < len(b.ext) {
-		return &b.ext[k]
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	if !b.done {
+		b.done = true
+		for i := range b.shards {
+			sh := &b.shards[i]
+			sh.mu.Lock()
+			for j := range sh.ext {
+				for j >= len(b.merged) {
+					b.merged = append(b.merged, bgExtent{})
+				}
+				m, e := &b.merged[j], &sh.ext[j]
+				if e.hist == nil {
+					continue
+				}
+				if m.hist == nil {
+					m.hist = make([]int64, histLen)
+				}
+				m.area += e.area
+				var carry uint64
+				m.sumLo, carry = bits.Add64(m.sumLo, e.sumLo, 0)
+				m.sumHi, _ = bits.Add64(m.sumHi, e.sumHi, carry)
+				for h, a := range e.hist {
+					m.hist[h] += a
+				}
+			}
+			sh.ext = nil
+			sh.mu.Unlock()
+		}
+	}
+	if k < len(b.merged) {
+		return &b.merged[k]
 	}
 	return &bgExtent{}
 }
@@ -105,7 +172,7 @@ func (b *Background) Mean(k int) float64 {
 // Median returns the area-weighted median distance (m) of extent k: the
 // distance at which the cumulative area reaches half the total, read from
 // the histogram with linear interpolation inside the bin that holds it. The
-// error is below one bin width: 0.1% of the distance (1 m below 1 m).
+// error is below one bin width: 0.098% of the distance (1 m below 1 m).
 // It is 0 when the extent has no area.
 func (b *Background) Median(k int) float64 {
 	e := b.get(k)

@@ -106,3 +106,33 @@ func addMasked(b *Background, dist []float64, mask []uint64, wts []int64) {
 		}
 	}
 }
+
+// TestDistBin checks the histogram's bins: each distance lies in its bin,
+// the bins are contiguous and at most 1/1024 wide (relative), on random
+// distances from 1 mm to 1e8 m and on the bin edges themselves.
+func TestDistBin(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	check := func(d float64) {
+		j := distBin(d)
+		lo, hi := binEdges(j)
+		if !(lo <= d && d < hi) {
+			t.Fatalf("distance %v in bin %d = [%v, %v)", d, j, lo, hi)
+		}
+		if j > 0 && (hi-lo)/lo > 1.0/1024 {
+			t.Fatalf("bin %d = [%v, %v) is %.6f wide", j, lo, hi, (hi-lo)/lo)
+		}
+		if _, prevHi := binEdges(j - 1); j > 0 && prevHi != lo {
+			t.Fatalf("bins %d and %d leave a gap: %v, %v", j-1, j, prevHi, lo)
+		}
+	}
+	for range 100000 {
+		check(math.Exp(-7 + 25*r.Float64()))
+	}
+	for j := 1; j < histLen-1; j += 97 {
+		lo, _ := binEdges(j)
+		check(lo)
+		check(math.Nextafter(lo, 0))
+	}
+	check(0)
+	check(2.0e7)
+}

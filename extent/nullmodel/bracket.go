@@ -155,7 +155,7 @@ func (ll *lonLat) stencil(pr int) *stencil {
 //
 // while r = f stays below pi b/2 and away from the site and its cut locus;
 // both bounds fall with r. With f(u) in [f(a)-t, f(a)+t] (f is 1-Lipschitz)
-// and f'' >= 0, f'(u) lies in [f'(0), f'(0) + t H2], so f'' lies in
+// and f” >= 0, f'(u) lies in [f'(0), f'(0) + t H2], so f” lies in
 // [H1 q1, H2 q2] =: [A, B] with H1 = h_lo(f(a)+t), H2 = h_hi(f(a)-t) and
 // q1, q2 the extremes of 1 - f'^2 on that interval; then
 //
