@@ -55,7 +55,7 @@ const maxTaylorDist = 9e6
 type lonLat struct {
 	west, dlon, north, dlat float64
 	mu                      sync.Mutex
-	rows                    map[int]*stencil
+	rows                    map[[2]int]*stencil // by half side K and row of patches
 }
 
 // stencil holds, for the anchor row of one row of patches, the geodesic
@@ -65,8 +65,8 @@ type lonLat struct {
 type stencil struct {
 	once   sync.Once
 	ok     bool
-	t      [patchP * patchP]float64
-	sa, ca [patchP * patchP]float64
+	t      []float64
+	sa, ca []float64
 	tmax   float64
 }
 
@@ -76,7 +76,7 @@ type stencil struct {
 // grid's geotransform. Its Distances and Fill are those of New; its
 // Bracket uses the fast path described there.
 func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
-	ll := &lonLat{west: west, dlon: dlon, north: north, dlat: dlat, rows: map[int]*stencil{}}
+	ll := &lonLat{west: west, dlon: dlon, north: north, dlat: dlat, rows: map[[2]int]*stencil{}}
 	cen := func(row, c0, c1 int, lons, lats []float64) {
 		lat := north + (float64(row)+0.5)*dlat
 		for c := c0; c < c1; c++ {
@@ -90,29 +90,31 @@ func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
 func (ll *lonLat) lat(r int) float64 { return ll.north + (float64(r)+0.5)*ll.dlat }
 func (ll *lonLat) lon(c int) float64 { return ll.west + (float64(c)+0.5)*ll.dlon }
 
-// stencil returns the stencil of patch row pr (anchor row pr*patchP +
-// patchK), computing it once.
-func (ll *lonLat) stencil(pr int) *stencil {
+// stencil returns the stencil of the patches of side 2K+1 cells in row pr
+// (anchor row pr*(2K+1) + K), computing it once.
+func (ll *lonLat) stencil(k, pr int) *stencil {
 	ll.mu.Lock()
-	s := ll.rows[pr]
+	s := ll.rows[[2]int{k, pr}]
 	if s == nil {
 		s = new(stencil)
-		ll.rows[pr] = s
+		ll.rows[[2]int{k, pr}] = s
 	}
 	ll.mu.Unlock()
 	s.once.Do(func() {
-		ra := pr*patchP + patchK
+		p := 2*k + 1
+		ra := pr*p + k
 		la := ll.lat(ra)
 		if !(math.Abs(la) <= 90) {
 			return
 		}
-		for dr := -patchK; dr <= patchK; dr++ {
+		s.t, s.sa, s.ca = make([]float64, p*p), make([]float64, p*p), make([]float64, p*p)
+		for dr := -k; dr <= k; dr++ {
 			lp := ll.lat(ra + dr)
 			if !(math.Abs(lp) <= 90) {
 				return
 			}
-			for dc := -patchK; dc <= patchK; dc++ {
-				j := (dr+patchK)*patchP + dc + patchK
+			for dc := -k; dc <= k; dc++ {
+				j := (dr+k)*p + dc + k
 				t, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*ll.dlon)
 				s.t[j] = t
 				s.sa[j], s.ca[j] = math.Sincos(az * math.Pi / 180)
@@ -184,7 +186,10 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	}
 	sc := scratchPool.Get().(*scratch)
 	defer scratchPool.Put(sc)
-	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc}
+	if cap(sc.pending) < n {
+		sc.pending = make([]bool, n)
+	}
+	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n]}
 	for sr := floorDiv(y0, SuperTile); sr*SuperTile < y0+h; sr++ {
 		for scol := floorDiv(x0, SuperTile); scol*SuperTile < x0+w; scol++ {
 			b.super(sr, scol)
@@ -213,6 +218,7 @@ type bracketer struct {
 	cands    []int
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
+	pending  []bool // per block cell: left to the patches
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -279,16 +285,86 @@ func (b *bracketer) super(sr, scol int) {
 		b.exactRange(r0, c0, SuperTile, SuperTile)
 		return
 	}
+	// First try the super-tile's centre as the anchor of all its cells.
 	b.centreD = b.centreD[:0]
+	b.measured = b.measured[:0]
+	big := ll.stencil(SuperTile/2, sr)
+	best := math.Inf(1)
 	for _, k := range b.cands {
-		slat, slon := ix.Site(k)
-		b.centreD = append(b.centreD, geodesy.Distance(clat, clon, slat, slon))
+		m := b.measure(k, clat, clon, big)
+		b.centreD = append(b.centreD, m.f0)
+		best = math.Min(best, m.f0)
+		b.measured = append(b.measured, m)
+	}
+	if big.ok {
+		keep := b.measured[:0]
+		for _, m := range b.measured {
+			if m.f0 <= best+2*big.tmax+1e-3 {
+				keep = append(keep, m)
+			}
+		}
+		b.measured = keep
+	}
+	pend := false
+	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
+		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
+			i, ok := b.needed(c, r)
+			if !ok {
+				continue
+			}
+			b.pending[i] = true
+			if big.ok && b.cell(i, big, (r-cr+SuperTile/2)*SuperTile+c-cc+SuperTile/2) {
+				b.pending[i] = false
+				continue
+			}
+			pend = true
+		}
+	}
+	if !pend {
+		return
 	}
 	for pr := 0; pr < superP; pr++ {
 		for pc := 0; pc < superP; pc++ {
 			b.patch(sr*superP+pr, scol*superP+pc, clat, clon)
 		}
 	}
+}
+
+// measure returns site k measured exactly at anchor (alat, alon), with the
+// Hessian bounds for the anchor's stencil st.
+func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
+	slat, slon := b.f.ix.Site(k)
+	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
+	sz, cz := math.Sincos(az * math.Pi / 180)
+	m := anchorSite{k: k, f0: f0, sz: sz, cz: cz, slat: slat, slon: slon}
+	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
+		m.taylor = true
+		m.h1 = hLo(f0 + st.tmax)
+		m.h2 = hHi(f0 - st.tmax)
+	}
+	return m
+}
+
+// cell brackets block cell i from the measured sites, at stencil entry j
+// of st, and reports whether the bracket is narrow enough and inside one
+// bin (then lo[i] and hi[i] are set).
+func (b *bracketer) cell(i int, st *stencil, j int) bool {
+	t, su, cu := st.t[j], st.sa[j], st.ca[j]
+	lo, hi := math.Inf(1), math.Inf(1)
+	for q := range b.measured {
+		l1, h1 := taylorBracket(&b.measured[q], t, su, cu)
+		if l1 < lo {
+			lo = l1
+		}
+		if h1 < hi {
+			hi = h1
+		}
+	}
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return true
+	}
+	return false
 }
 
 // exactRange computes the cells of the block in the global rectangle of
@@ -314,14 +390,15 @@ func (b *bracketer) exactRange(r0, c0, h, w int) {
 func hLo(r float64) float64 { return sqrtKmax / math.Tan(sqrtKmax*r) }
 func hHi(r float64) float64 { return sqrtKmin / math.Tan(sqrtKmin*r) }
 
-// patch brackets the cells of the block in patch (pr, pc), whose
-// super-tile's centre is (clat, clon).
+// patch brackets the cells of the block in patch (pr, pc) that the
+// super-tile's anchor left pending; (clat, clon) is the super-tile's
+// centre.
 func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 	r0, c0 := pr*patchP, pc*patchP
 	any := false
 	for r := r0; r < r0+patchP && !any; r++ {
 		for c := c0; c < c0+patchP; c++ {
-			if _, ok := b.needed(c, r); ok {
+			if i, ok := b.needed(c, r); ok && b.pending[i] {
 				any = true
 				break
 			}
@@ -330,8 +407,8 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 	if !any {
 		return
 	}
-	ll, ix := b.ll, b.f.ix
-	st := ll.stencil(pr)
+	ll := b.ll
+	st := ll.stencil(patchK, pr)
 	if !st.ok {
 		b.exactRange(r0, c0, patchP, patchP)
 		return
@@ -346,49 +423,22 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 			best, bi = lb, j
 		}
 	}
-	b.measured = b.measured[:0]
-	measure := func(j int) {
-		k := b.cands[j]
-		slat, slon := ix.Site(k)
-		f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
-		sz, cz := math.Sincos(az * math.Pi / 180)
-		m := anchorSite{k: k, f0: f0, sz: sz, cz: cz, slat: slat, slon: slon}
-		if f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
-			m.taylor = true
-			m.h1 = hLo(f0 + st.tmax)
-			m.h2 = hHi(f0 - st.tmax)
-		}
-		b.measured = append(b.measured, m)
-	}
-	measure(bi)
+	b.measured = append(b.measured[:0], b.measure(b.cands[bi], alat, alon, st))
 	best = b.measured[0].f0
 	for j, d := range b.centreD {
 		if j == bi || d-l > best+2*st.tmax+1e-3 {
 			continue
 		}
-		measure(j)
+		b.measured = append(b.measured, b.measure(b.cands[j], alat, alon, st))
 		best = math.Min(best, b.measured[len(b.measured)-1].f0)
 	}
 	for dr := -patchK; dr <= patchK; dr++ {
 		for dc := -patchK; dc <= patchK; dc++ {
 			i, ok := b.needed(ca+dc, ra+dr)
-			if !ok {
+			if !ok || !b.pending[i] {
 				continue
 			}
-			j := (dr+patchK)*patchP + dc + patchK
-			t, su, cu := st.t[j], st.sa[j], st.ca[j]
-			lo, hi := math.Inf(1), math.Inf(1)
-			for q := range b.measured {
-				l1, h1 := taylorBracket(&b.measured[q], t, su, cu)
-				if l1 < lo {
-					lo = l1
-				}
-				if h1 < hi {
-					hi = h1
-				}
-			}
-			if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
-				b.lo[i], b.hi[i] = lo, hi
+			if b.cell(i, st, (dr+patchK)*patchP+dc+patchK) {
 				continue
 			}
 			lat, lon := ll.lat(ra+dr), ll.lon(ca+dc)

@@ -41,6 +41,7 @@ type scratch struct {
 	lons, lats []float64
 	cands      []int
 	lb         []float64
+	pending    []bool
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -217,26 +218,53 @@ func TestRowsHook(t *testing.T) {
 }
 
 // BenchmarkNullPass measures a whole pass of the distance-only null (the
-// field computed on the workers, then the same scoring as a raster) on a
-// 2000 x 2000 grid of 0.01-degree cells (4 million cells, about 1 km) with
-// 200 training points in clusters, beside BenchmarkScorePass for a raster
-// of the same size: cells per second.
+// field's bounds computed on the workers, then the same scoring as a
+// raster, and a sorting-bias tally on the rows as the run keeps) on the
+// study of the whole-sweep benchmark (cmd/sweepbench): a 60 x 40 degree
+// latitude-longitude window in 4 and 27 million cells, 500 training and 500 test
+// points drawn from a bump of suitability, 8 extents, the layout of the
+// points' values and a 4096-bin histogram over [-FarthestBound, 0]. Set
+// beside BenchmarkScorePass (a raster of the same size, 8 extents, same
+// worker count): ns per cell.
 func BenchmarkNullPass(b *testing.B) {
-	w, h := 2000, 2000
-	g, r := openTestRaster(b, w, h)
-	r.Close()
-	var lats, lons []float64
-	for i := range 200 {
-		cx, cy := 3+14*float64(i%5)/4, 32+14*float64((i/5)%4)/3
-		lats = append(lats, cy+0.8*math.Sin(float64(i)*1.7))
-		lons = append(lons, cx+0.8*math.Cos(float64(i)*2.3))
+	for _, cells := range []float64{4e6, 27e6} {
+		benchNullPass(b, cells)
 	}
+}
+
+func benchNullPass(b *testing.B, cells float64) {
+	h := int(math.Round(math.Sqrt(cells / 1.5)))
+	w := int(math.Round(float64(h) * 1.5))
+	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	r := rand.New(rand.NewPCG(7, 8))
+	var lats, lons, plats, plons []float64
+	for len(plats) < 1000 {
+		lon, lat := -20+60*r.Float64(), 30+40*r.Float64()
+		d2 := ((lon-10)*(lon-10) + (lat-50)*(lat-50)) / 128
+		if s := math.Exp(-d2); r.Float64() > s*s {
+			continue
+		}
+		plats, plons = append(plats, lat), append(plons, lon)
+	}
+	lats, lons = plats[:500], plons[:500]
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {
 		b.Fatal(err)
 	}
-	v := NewVirtual(g, DistanceNull(g, ix))
-	layout, err := metrics.NewLayout(lats, -3e6, 0, 4096)
+	f := DistanceNull(g, ix)
+	v := NewVirtual(g, f)
+	var pc []int
+	for i := range plats {
+		c, row, _ := g.CellOf(plons[i], plats[i])
+		pc = append(pc, row*w+c)
+	}
+	vals, _, _ := v.Sample(g, pc)
+	far := f.FarthestBound(w, h, 64)
+	layout, err := metrics.NewLayout(vals, -far, 0, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -245,11 +273,21 @@ func BenchmarkNullPass(b *testing.B) {
 		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", w*h, workers), func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
-				if _, _, err := v.Score(g, fam, layout, Options{Workers: workers}); err != nil {
+				var bg nullmodel.Background
+				rows := func(row, c0 int, vals []float64, wts []int64) {
+					d := make([]float64, len(vals))
+					for i, x := range vals {
+						d[i] = 0 - x
+					}
+					for k := range fam.Members {
+						bg.Add(k, d, wts)
+					}
+				}
+				if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: rows}); err != nil {
 					b.Fatal(err)
 				}
 			}
-			b.ReportMetric(float64(w*h)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+			b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(w*h), "ns/cell")
 		})
 	}
 }
