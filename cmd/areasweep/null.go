@@ -20,7 +20,7 @@ const farthestStep = 64
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
 	d    []float64
-	w    []int64
+	row  nullmodel.Row
 	span extent.SpanScratch
 }
 
@@ -51,26 +51,27 @@ func (s *session) scoreDistanceNull(i int) error {
 	far := field.FarthestBound(g.Width, g.Height, farthestStep)
 	var bg nullmodel.Background
 	fam := s.fam
-	// Each ok member's cells of the row, taken from its runs, go to its own
-	// tally (the distance is minus the null's value).
+	// The row's distances (minus the null's values) are prepared once; each
+	// ok member's cells of the row, taken from its runs, go to its own
+	// tally.
 	rows := func(row, c0 int, vals []float64, w []int64) {
 		sc := tallyPool.Get().(*tallyScratch)
 		defer tallyPool.Put(sc)
+		sc.d = sc.d[:0]
+		for _, v := range vals {
+			sc.d = append(sc.d, 0-v)
+		}
+		sc.row.Set(sc.d, w)
+		t := bg.Tally()
+		defer t.Done()
 		for k, mem := range fam.Members {
 			if mem.Status != extent.StatusOK {
 				continue
 			}
 			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
-			if len(runs) == 0 {
-				continue
-			}
-			sc.d, sc.w = sc.d[:0], sc.w[:0]
 			for i := 0; i < len(runs); i += 2 {
-				for x := int(runs[i]) - c0; x < int(runs[i+1])-c0; x++ {
-					sc.d, sc.w = append(sc.d, 0-vals[x]), append(sc.w, w[x])
-				}
+				t.Add(k, &sc.row, int(runs[i])-c0, int(runs[i+1])-c0)
 			}
-			bg.Add(k, sc.d, sc.w)
 		}
 	}
 	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training

@@ -50,8 +50,10 @@ const bgShards = 8
 // Weights are the caller's integer area units. Every sum is an integer, so
 // the result does not depend on the order of the rows or on which partial
 // sum a row went to. Extents are numbered from 0. It is safe for
-// concurrent use: Add takes the first free one of a few locked partial
-// sums, and the readers merge them.
+// concurrent use: Add (and Tally) take the first free one of a few locked
+// partial sums, and the readers merge them. A pass's row hook should
+// prepare each row once (Row.Set) and add its runs to every extent
+// through one Tally.
 //
 // A distance-only null pass (pass.Virtual on a BoundedField) hands it the
 // midpoints of the cells' brackets, each within nullmodel.BracketTol
@@ -79,18 +81,63 @@ type bgExtent struct {
 // skipped) and area weight weights[i] >= 0. It must not be called after
 // the first read (Area, Mean, Median, SortingBias).
 func (b *Background) Add(k int, dist []float64, weights []int64) {
-	var sh *bgShard
+	var r Row
+	r.Set(dist, weights)
+	t := b.Tally()
+	t.Add(k, &r, 0, len(dist))
+	t.Done()
+}
+
+// Row is one row of cells prepared for a Background: each cell's distance
+// in whole millimetres, its histogram bin and its weight, computed once
+// for all the extents the cells are added to.
+type Row struct {
+	mm  []uint64
+	bin []int32
+	w   []int64
+}
+
+// Set prepares the cells: distance dist[i] (m; NaN: the cell is skipped)
+// and area weight weights[i] >= 0.
+func (r *Row) Set(dist []float64, weights []int64) {
+	n := len(dist)
+	if cap(r.mm) < n {
+		r.mm, r.bin, r.w = make([]uint64, n), make([]int32, n), make([]int64, n)
+	}
+	r.mm, r.bin, r.w = r.mm[:n], r.bin[:n], r.w[:n]
+	for i, d := range dist {
+		if math.IsNaN(d) {
+			r.bin[i] = -1
+			continue
+		}
+		r.mm[i], r.bin[i], r.w[i] = uint64(math.Round(d*1000)), int32(distBin(d)), weights[i]
+	}
+}
+
+// Tally is a locked partial sum of a Background, for adding rows.
+type Tally struct {
+	sh *bgShard
+}
+
+// Tally returns a free partial sum, locked until Done: a worker takes one
+// per row (or per block) and adds that row's cells to every extent
+// holding them.
+func (b *Background) Tally() Tally {
 	for i := range b.shards {
 		if b.shards[i].mu.TryLock() {
-			sh = &b.shards[i]
-			break
+			return Tally{&b.shards[i]}
 		}
 	}
-	if sh == nil {
-		sh = &b.shards[k%bgShards]
-		sh.mu.Lock()
-	}
-	defer sh.mu.Unlock()
+	b.shards[0].mu.Lock()
+	return Tally{&b.shards[0]}
+}
+
+// Done releases the partial sum.
+func (t Tally) Done() { t.sh.mu.Unlock() }
+
+// Add adds cells lo <= i < hi of row r to extent k >= 0.
+func (t Tally) Add(k int, r *Row, lo, hi int) {
+	sh := t.sh
 	if k >= len(sh.ext) {
 		sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
 	}
@@ -98,18 +145,21 @@ func (b *Background) Add(k int, dist []float64, weights []int64) {
 	if e.hist == nil {
 		e.hist = make([]int64, histLen)
 	}
-	for i, d := range dist {
-		if math.IsNaN(d) {
+	area, sumHi, sumLo := e.area, e.sumHi, e.sumLo
+	for i := lo; i < hi; i++ {
+		j := r.bin[i]
+		if j < 0 {
 			continue
 		}
-		w := weights[i]
-		hi, lo := bits.Mul64(uint64(math.Round(d*1000)), uint64(w))
-		e.area += w
+		w := r.w[i]
+		ph, pl := bits.Mul64(r.mm[i], uint64(w))
+		area += w
 		var carry uint64
-		e.sumLo, carry = bits.Add64(e.sumLo, lo, 0)
-		e.sumHi, _ = bits.Add64(e.sumHi, hi, carry)
-		e.hist[distBin(d)] += w
+		sumLo, carry = bits.Add64(sumLo, pl, 0)
+		sumHi, _ = bits.Add64(sumHi, ph, carry)
+		e.hist[j] += w
 	}
+	e.area, e.sumHi, e.sumLo = area, sumHi, sumLo
 }
 
 // get returns extent k's sums, merging the partial sums at the first call

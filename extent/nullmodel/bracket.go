@@ -46,8 +46,9 @@ var (
 
 // maxTaylorDist is the largest distance (m) at which the Taylor bracket is
 // used: the lower Hessian bound cot(r/b)/b stays positive below pi b/2 =
-// 9985 km, and the cut locus of a site is about 20 000 km away.
-const maxTaylorDist = 9e6
+// 9985 km, its cheap form (hLoFast) holds below b = 6357 km, and the cut
+// locus of a site is about 20 000 km away.
+const maxTaylorDist = 6e6
 
 // lonLat describes a north-up latitude-longitude grid: centre of cell
 // (c, r) at (west + (c+0.5) dlon, north + (r+0.5) dlat) degrees, as
@@ -223,12 +224,11 @@ type bracketer struct {
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
 // distance, the sine and cosine of the azimuth from the anchor towards it,
-// and the Hessian bounds H1, H2 for the patch.
+// and whether the Taylor bracket applies.
 type anchorSite struct {
 	k          int
 	f0         float64
 	sz, cz     float64
-	h1, h2     float64
 	taylor     bool
 	slat, slon float64
 }
@@ -339,8 +339,6 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 	m := anchorSite{k: k, f0: f0, sz: sz, cz: cz, slat: slat, slon: slon}
 	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
 		m.taylor = true
-		m.h1 = hLo(f0 + st.tmax)
-		m.h2 = hHi(f0 - st.tmax)
 	}
 	return m
 }
@@ -386,9 +384,20 @@ func (b *bracketer) exactRange(r0, c0, h, w int) {
 	}
 }
 
-// hLo and hHi are the Hessian comparison bounds at distance r (m).
-func hLo(r float64) float64 { return sqrtKmax / math.Tan(sqrtKmax*r) }
-func hHi(r float64) float64 { return sqrtKmin / math.Tan(sqrtKmin*r) }
+// hLoFast and hHiFast bound the Hessian comparison bounds at distance r
+// (m), 0 < r <= b, without a tangent: with x = r/b <= 1,
+//
+//	cot(x)/b >= (1/x - x/3 - x^3/40)/b = 1/r - r/(3 b^2) - r^3/(40 b^4)
+//
+// (the series cot x = 1/x - x/3 - x^3/45 - 2x^5/945 - ... has its tail
+// below x^3 (1/45 + 2/945 + ...) < x^3/40 for x <= 1), and
+// (b/a^2) cot(b r/a^2) <= 1/r (y cot y <= 1).
+func hLoFast(r float64) float64 {
+	x := r * sqrtKmax
+	return (1/x - x/3 - x*x*x/40) * sqrtKmax
+}
+
+func hHiFast(r float64) float64 { return 1 / r }
 
 // patch brackets the cells of the block in patch (pr, pc) that the
 // super-tile's anchor left pending; (clat, clon) is the super-tile's
@@ -474,30 +483,39 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	} else if c0 < -1 {
 		c0 = -1
 	}
-	p1, p2 := c0, c0+t*m.h2
-	if p2 > 1 {
-		p2 = 1
-	}
-	q1 := 1 - p1*p1
-	if p2*p2 > p1*p1 {
-		q1 = 1 - p2*p2
-	}
-	if q1 < 0 {
-		q1 = 0
-	}
-	q2 := 1.0
-	if p1 > 0 {
-		q2 = 1 - p1*p1
-	} else if p2 < 0 {
-		q2 = 1 - p2*p2
+	// Hessian bounds for this cell's t (see hLoFast, hHiFast).
+	h1, h2 := hLoFast(m.f0+t), hHiFast(m.f0-t)
+	// f'' in [h1 q1, h2 q2], q the range of 1 - f'^2 with f' in [c0, p2];
+	// twice, the second time with p2 from the first upper bound on f''.
+	b := h2
+	var q1, q2 float64
+	for range 2 {
+		p2 := c0 + t*b
+		if p2 > 1 {
+			p2 = 1
+		}
+		q1 = 1 - c0*c0
+		if p2*p2 > c0*c0 {
+			q1 = 1 - p2*p2
+		}
+		if q1 < 0 {
+			q1 = 0
+		}
+		q2 = 1.0
+		if c0 > 0 {
+			q2 = 1 - c0*c0
+		} else if p2 < 0 {
+			q2 = 1 - p2*p2
+		}
+		b = h2 * q2
 	}
 	base := m.f0 + t*c0
 	half := t * t / 2
 	margin := 1e-3 + 1e-9*m.f0
-	if l := base + m.h1*q1*half - margin; l > lo {
+	if l := base + h1*q1*half - margin; l > lo {
 		lo = l
 	}
-	if h := base + m.h2*q2*half + margin; h < hi {
+	if h := base + h2*q2*half + margin; h < hi {
 		hi = h
 	}
 	return lo, hi

@@ -228,20 +228,35 @@ func TestRowsHook(t *testing.T) {
 // worker count): ns per cell.
 func BenchmarkNullPass(b *testing.B) {
 	for _, cells := range []float64{4e6, 27e6} {
-		benchNullPass(b, cells)
+		g, v, layout, fam := nullBenchStudy(b, cells)
+		for _, workers := range []int{1, 2} {
+			b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", g.Cells(), workers), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					var bg nullmodel.Background
+					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: tallyRows(g, fam, &bg)}); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(g.Cells()), "ns/cell")
+			})
+		}
+		g.Close()
 	}
 }
 
-func benchNullPass(b *testing.B, cells float64) {
+// nullBenchStudy returns the null of the whole-sweep benchmark's study in
+// about cells cells (see BenchmarkNullPass): the grid (to be closed), the
+// virtual null, its layout and a family of 8 extents covering the grid.
+func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
 	h := int(math.Round(math.Sqrt(cells / 1.5)))
 	w := int(math.Round(float64(h) * 1.5))
 	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
 	if err != nil {
 		b.Fatal(err)
 	}
-	defer g.Close()
 	r := rand.New(rand.NewPCG(7, 8))
-	var lats, lons, plats, plons []float64
+	var plats, plons []float64
 	for len(plats) < 1000 {
 		lon, lat := -20+60*r.Float64(), 30+40*r.Float64()
 		d2 := ((lon-10)*(lon-10) + (lat-50)*(lat-50)) / 128
@@ -250,8 +265,7 @@ func benchNullPass(b *testing.B, cells float64) {
 		}
 		plats, plons = append(plats, lat), append(plons, lon)
 	}
-	lats, lons = plats[:500], plons[:500]
-	ix, err := geodesy.NewIndex(lats, lons)
+	ix, err := geodesy.NewIndex(plats[:500], plons[:500])
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -263,33 +277,47 @@ func benchNullPass(b *testing.B, cells float64) {
 		pc = append(pc, row*w+c)
 	}
 	vals, _, _ := v.Sample(g, pc)
-	far := f.FarthestBound(w, h, 64)
-	layout, err := metrics.NewLayout(vals, -far, 0, 4096)
+	layout, err := metrics.NewLayout(vals, -f.FarthestBound(w, h, 64), 0, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
-	fam := fullFamily(g, 8)
-	for _, workers := range []int{1, 2} {
-		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", w*h, workers), func(b *testing.B) {
-			b.ReportAllocs()
-			for b.Loop() {
-				var bg nullmodel.Background
-				rows := func(row, c0 int, vals []float64, wts []int64) {
-					d := make([]float64, len(vals))
-					for i, x := range vals {
-						d[i] = 0 - x
-					}
-					for k := range fam.Members {
-						bg.Add(k, d, wts)
-					}
-				}
-				if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: rows}); err != nil {
-					b.Fatal(err)
-				}
+	return g, v, layout, fullFamily(g, 8)
+}
+
+// tallyRows returns a rows hook that adds every row's distances to bg for
+// every member holding them, as the run's sorting-bias tally does.
+func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
+	return func(row, c0 int, vals []float64, wts []int64) {
+		var span extent.SpanScratch
+		var r nullmodel.Row
+		d := make([]float64, len(vals))
+		for i, v := range vals {
+			d[i] = 0 - v
+		}
+		r.Set(d, wts)
+		t := bg.Tally()
+		defer t.Done()
+		for k := range fam.Members {
+			runs := fam.Span(k, -1, row, c0, c0+len(vals), &span)
+			for i := 0; i < len(runs); i += 2 {
+				t.Add(k, &r, int(runs[i])-c0, int(runs[i+1])-c0)
 			}
-			b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(w*h), "ns/cell")
-		})
+		}
 	}
+}
+
+// mustLayout returns a layout of 1000 values evenly spread over [lo, hi]
+// with 4096 histogram bins on that range.
+func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = lo + (hi-lo)*float64(i)/1000
+	}
+	l, err := metrics.NewLayout(vals, lo, hi, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return l
 }
 
 // TestVirtualProjectedMatchesNearest checks the null's values cell by cell
