@@ -305,6 +305,7 @@ func (b *bracketer) super(sr, scol int) {
 		}
 		b.measured = keep
 	}
+	sortSites(b.measured)
 	pend := false
 	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
 		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
@@ -350,6 +351,12 @@ func (b *bracketer) cell(i int, st *stencil, j int) bool {
 	t, su, cu := st.t[j], st.sa[j], st.ca[j]
 	lo, hi := math.Inf(1), math.Inf(1)
 	for q := range b.measured {
+		// Sites are in increasing order of f0: once f0 - t > hi, this site
+		// and the farther ones have both ends above hi, and change
+		// neither end of the minimum.
+		if b.measured[q].f0-t > hi {
+			break
+		}
 		l1, h1 := taylorBracket(&b.measured[q], t, su, cu)
 		if l1 < lo {
 			lo = l1
@@ -441,6 +448,7 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 		b.measured = append(b.measured, b.measure(b.cands[j], alat, alon, st))
 		best = math.Min(best, b.measured[len(b.measured)-1].f0)
 	}
+	sortSites(b.measured)
 	for dr := -patchK; dr <= patchK; dr++ {
 		for dc := -patchK; dc <= patchK; dc++ {
 			i, ok := b.needed(ca+dc, ra+dr)
@@ -456,6 +464,16 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 				d = math.Min(d, geodesy.Distance(lat, lon, b.measured[q].slat, b.measured[q].slon))
 			}
 			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// sortSites sorts measured sites by distance at the anchor (insertion
+// sort: the lists hold a few sites).
+func sortSites(m []anchorSite) {
+	for i := 1; i < len(m); i++ {
+		for j := i; j > 0 && m[j].f0 < m[j-1].f0; j-- {
+			m[j], m[j-1] = m[j-1], m[j]
 		}
 	}
 }

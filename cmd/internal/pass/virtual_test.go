@@ -287,20 +287,27 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 // tallyRows returns a rows hook that adds every row's distances to bg for
 // every member holding them, as the run's sorting-bias tally does.
 func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
+	type scratch struct {
+		span extent.SpanScratch
+		row  nullmodel.Row
+		d    []float64
+	}
+	pool := sync.Pool{New: func() any { return new(scratch) }}
 	return func(row, c0 int, vals []float64, wts []int64) {
-		var span extent.SpanScratch
-		var r nullmodel.Row
-		d := make([]float64, len(vals))
-		for i, v := range vals {
-			d[i] = 0 - v
+		sc := pool.Get().(*scratch)
+		defer pool.Put(sc)
+		span, r := &sc.span, &sc.row
+		sc.d = sc.d[:0]
+		for _, v := range vals {
+			sc.d = append(sc.d, 0-v)
 		}
-		r.Set(d, wts)
+		r.Set(sc.d, wts)
 		t := bg.Tally()
 		defer t.Done()
 		for k := range fam.Members {
-			runs := fam.Span(k, -1, row, c0, c0+len(vals), &span)
+			runs := fam.Span(k, -1, row, c0, c0+len(vals), span)
 			for i := 0; i < len(runs); i += 2 {
-				t.Add(k, &r, int(runs[i])-c0, int(runs[i+1])-c0)
+				t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
 			}
 		}
 	}
