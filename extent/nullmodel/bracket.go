@@ -139,42 +139,51 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // depend on the block it is computed in.
 //
 // A Field made by New computes every cell exactly (lo = hi). One made by
-// NewLonLat uses anchors: on a global lattice of patches of 5 x 5 cells,
-// the centre cell a of each patch is measured exactly to each site k that
-// can be nearest in the patch (f_k(a) = s(a, k) and the azimuth there), and
-// each cell p of the patch is bracketed by a second-order Taylor bound
-// along the geodesic from a to p (length t, initial direction u; the same
-// for every patch of a row of patches on such a grid, so measured once per
-// row). Along that geodesic gamma, with f = f_k,
+// NewLonLat uses anchors: a cell a measured exactly to each site k that can
+// be nearest around it (f_k(a) = s(a, k) and the azimuth towards k), and,
+// for each cell p near a, a second-order Taylor bound along the geodesic
+// from a to p (length t, initial direction u; on such a grid the same for
+// every anchor of a row, so measured once per row). Along that geodesic
+// gamma, with f = f_k,
 //
 //	f'(0) = cos(beta) = <u, grad f(a)>,  f'' = Hess f(gamma', gamma') = h (1 - f'^2),
 //
 // where h is the curvature of the geodesic circle about k (the Hessian of
 // the distance function across its gradient). The Hessian comparison
-// theorem (e.g. Petersen, Riemannian Geometry, 3rd ed., 2016, thm 6.4.3;
+// theorem (e.g. Petersen, Riemannian Geometry, 3rd ed., 2016, sec. 6.4;
 // the ellipsoid's Gaussian curvature lies in [b^2/a^4, 1/b^2]) gives
 //
-//	cot(r/b)/b <= h(r) <= (b/a^2) cot(b r/a^2)
+//	cot(r/b)/b <= h(r) <= (b/a^2) cot(b r/a^2) <= 1/r
 //
-// while r = f stays below pi b/2 and away from the site and its cut locus;
-// both bounds fall with r. With f(u) in [f(a)-t, f(a)+t] (f is 1-Lipschitz)
-// and f” >= 0, f'(u) lies in [f'(0), f'(0) + t H2], so f” lies in
-// [H1 q1, H2 q2] =: [A, B] with H1 = h_lo(f(a)+t), H2 = h_hi(f(a)-t) and
-// q1, q2 the extremes of 1 - f'^2 on that interval; then
+// while r = f stays below pi b/2, away from the site and its cut locus
+// (about 20 000 km away); both bounds fall with r, and hLoFast bounds the
+// lower one without a tangent. With f(u) in [f(a)-t, f(a)+t] (f is
+// 1-Lipschitz), f'' lies in [H1 q1, H2 q2] =: [A, B] with H1 =
+// h_lo(f(a)+t), H2 = 1/(f(a)-t) and q1, q2 the extremes of 1 - f'^2 for f'
+// in [f'(0), f'(0) + t B] (f'' >= 0; B first taken as H2, then once more
+// from the result); so
 //
 //	f(p) = f(a) + t f'(0) + int_0^t (t-u) f''(u) du  in  f(a) + t f'(0) + [A, B] t^2/2,
 //
-// widened by a margin (1 mm + 1e-9 f(a)) for PROJ's 15 nm and the
-// rounding of coordinates, and intersected with [f(a)-t, f(a)+t]. The
-// cell's bracket is the minimum over the measured sites of both ends.
-// A site is left out of a patch when a lower bound on its distance at the
-// anchor exceeds the nearest measured one by more than twice the patch's
-// largest t (it cannot be nearest anywhere in the patch); the lower bounds
-// come from exact distances at the super-tile's centre minus pathBound,
-// and the super-tile's candidates from one geodesy.Index query, as in
-// Distances. A cell whose bracket straddles a bin or is too wide is
-// computed exactly: the smallest geodesic to the measured sites, which is
-// Index.Nearest's value bit for bit.
+// widened by a margin (1 mm + 1e-9 f(a)) for PROJ's 15 nm and the rounding
+// of coordinates, and intersected with [f(a)-t, f(a)+t] widened by the
+// same margin. A site nearer the anchor than twice the anchor's largest t,
+// or within that t of 6000 km, gets only the 1-Lipschitz bound. The
+// cell's bracket is the minimum over the measured sites of both ends (a
+// site with f(a) - t above the running upper end changes neither).
+//
+// The anchors: on a global lattice of super-tiles of 15 x 15 cells, the
+// centre cell is the first anchor of every cell of its super-tile; the
+// cells it leaves (bracket too wide or across a bin) go to the centre of
+// their patch of 5 x 5 cells (3 x 3 patches per super-tile). A site is
+// left out at an anchor when a lower bound on its distance there exceeds
+// the nearest measured one by more than twice the largest t (it cannot be
+// nearest anywhere around the anchor); the lower bounds at a patch's
+// anchor are the exact distances at the super-tile's centre minus
+// pathBound, and the super-tile's candidates come from one geodesy.Index
+// query, as in Distances. A cell whose patch bracket still fails is
+// computed exactly: the smallest geodesic to the patch's measured sites,
+// which is Index.Nearest's value bit for bit.
 func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
 	if f.ll == nil {
@@ -489,7 +498,10 @@ func (b *bracketer) sameBins(lo, hi float64) bool {
 // length t and azimuth (sine su, cosine cu) from the anchor to site m (see
 // Bracket).
 func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
-	lo, hi = math.Max(0, m.f0-t), m.f0+t
+	// The 1-Lipschitz bound, widened by the margin so that a bracket is
+	// never a single value (only cells measured with Distance are).
+	margin := 1e-3 + 1e-9*m.f0
+	lo, hi = math.Max(0, m.f0-t-margin), m.f0+t+margin
 	if !m.taylor {
 		return lo, hi
 	}
@@ -529,7 +541,6 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	}
 	base := m.f0 + t*c0
 	half := t * t / 2
-	margin := 1e-3 + 1e-9*m.f0
 	if l := base + h1*q1*half - margin; l > lo {
 		lo = l
 	}
