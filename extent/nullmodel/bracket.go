@@ -158,9 +158,9 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // while r = f stays below pi b/2, away from the site and its cut locus
 // (about 20 000 km away); both bounds fall with r, and hLoFast bounds the
 // lower one without a tangent. With f(u) in [f(a)-t, f(a)+t] (f is
-// 1-Lipschitz), f” lies in [H1 q1, H2 q2] =: [A, B] with H1 =
+// 1-Lipschitz), the second derivative lies in [H1 q1, H2 q2] =: [A, B] with H1 =
 // h_lo(f(a)+t), H2 = 1/(f(a)-t) and q1, q2 the extremes of 1 - f'^2 for f'
-// in [f'(0), f'(0) + t B] (f” >= 0; B first taken as H2, then once more
+// in [f'(0), f'(0) + t B] (it is >= 0; B first taken as H2, then once more
 // from the result); so
 //
 //	f(p) = f(a) + t f'(0) + int_0^t (t-u) f''(u) du  in  f(a) + t f'(0) + [A, B] t^2/2,
