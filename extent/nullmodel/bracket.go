@@ -236,7 +236,7 @@ type bracketer struct {
 // and whether the Taylor bracket applies.
 type anchorSite struct {
 	k          int
-	f0         float64
+	f0, inv    float64 // distance and its inverse
 	sz, cz     float64
 	taylor     bool
 	slat, slon float64
@@ -346,7 +346,7 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 	slat, slon := b.f.ix.Site(k)
 	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
 	sz, cz := math.Sincos(az * math.Pi / 180)
-	m := anchorSite{k: k, f0: f0, sz: sz, cz: cz, slat: slat, slon: slon}
+	m := anchorSite{k: k, f0: f0, inv: 1 / f0, sz: sz, cz: cz, slat: slat, slon: slon}
 	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
 		m.taylor = true
 	}
@@ -414,6 +414,12 @@ func hLoFast(r float64) float64 {
 }
 
 func hHiFast(r float64) float64 { return 1 / r }
+
+// kLo1 and kLo3 are the coefficients of hLoFast: 1/(3 b^2) and 1/(40 b^4).
+var (
+	kLo1 = sqrtKmax * sqrtKmax / 3
+	kLo3 = sqrtKmax * sqrtKmax * sqrtKmax * sqrtKmax / 40
+)
 
 // patch brackets the cells of the block in patch (pr, pc) that the
 // super-tile's anchor left pending; (clat, clon) is the super-tile's
@@ -513,8 +519,13 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	} else if c0 < -1 {
 		c0 = -1
 	}
-	// Hessian bounds for this cell's t (see hLoFast, hHiFast).
-	h1, h2 := hLoFast(m.f0+t), hHiFast(m.f0-t)
+	// Hessian bounds for this cell's t without a division: with x = t/f0
+	// <= 1/2 (f0 > 2 t for a Taylor site), 1/(f0+t) >= (1-x)/f0 and
+	// 1/(f0-t) = 1/(f0 (1-x)) <= (1 + x + 2x^2)/f0; the other terms of
+	// hLoFast use the larger f0+t, which only lowers them further.
+	x := t * m.inv
+	h1 := (1-x)*m.inv - (m.f0+t)*kLo1 - (m.f0+t)*(m.f0+t)*(m.f0+t)*kLo3
+	h2 := (1 + x + 2*x*x) * m.inv
 	// f'' in [h1 q1, h2 q2], q the range of 1 - f'^2 with f' in [c0, p2];
 	// twice, the second time with p2 from the first upper bound on f''.
 	b := h2

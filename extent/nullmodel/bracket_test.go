@@ -180,3 +180,31 @@ func BenchmarkFieldBracket(b *testing.B) {
 		}
 	}
 }
+
+// TestHessianBounds checks the cheap forms of the Hessian comparison
+// bounds against the bounds themselves (cot from math.Tan) from 1 m to
+// 6000 km: hLoFast below cot(r/b)/b, hHiFast above (b/a^2) cot(b r/a^2),
+// and the division-free forms of taylorBracket beyond them; to 1e-12
+// relative (our tolerance for the rounding of both sides, far inside the
+// bracket's margin).
+func TestHessianBounds(t *testing.T) {
+	const eps = 1e-12
+	for r := 1.0; r < 6e6; r *= 1.01 {
+		lo := sqrtKmax / math.Tan(sqrtKmax*r)
+		hi := sqrtKmin / math.Tan(sqrtKmin*r)
+		if !(hLoFast(r) <= lo*(1+eps) && lo <= hi*(1+eps) && hi <= hHiFast(r)*(1+eps)) {
+			t.Fatalf("r = %v m: hLoFast %v, lower bound %v, upper bound %v, hHiFast %v", r, hLoFast(r), lo, hi, hHiFast(r))
+		}
+		for _, x := range []float64{0, 0.1, 0.3, 0.5} {
+			f0, step := r, x*r
+			if f0+step >= 6e6 {
+				continue
+			}
+			h1 := (1-x)/f0 - (f0+step)*kLo1 - (f0+step)*(f0+step)*(f0+step)*kLo3
+			h2 := (1 + x + 2*x*x) / f0
+			if h1 > hLoFast(f0+step)*(1+eps) || h2*(1+eps) < hHiFast(f0-step) {
+				t.Fatalf("f0 = %v m, t = %v m: division-free bounds %v, %v against %v, %v", f0, step, h1, h2, hLoFast(f0+step), hHiFast(f0-step))
+			}
+		}
+	}
+}
