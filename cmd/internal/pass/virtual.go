@@ -85,6 +85,7 @@ type virtualSource struct {
 	bins         Binner
 	lo, hi       []float64
 	minHi, maxLo []float64 // per member: smallest upper and largest lower bound in the block
+	rowLo, rowHi []float64 // per row and member: smallest lower and largest upper bound
 	one          [1]float64
 }
 
@@ -121,42 +122,68 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 
 // exactExtremes computes exactly (lo = hi = Fill's value) every cell of
 // the block that may hold the smallest or the largest value of a member
-// it is added to (see Virtual).
+// it is added to (see Virtual). A first walk finds each member's smallest
+// upper and largest lower bound in the block and, per row, its smallest
+// lower and largest upper bound; the second walk visits only the rows
+// that can hold such a cell.
 func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
+	nm := len(s.minHi)
 	for k := range s.minHi {
 		s.minHi[k], s.maxLo[k] = math.Inf(1), math.Inf(-1)
 	}
-	for pass := 0; pass < 2; pass++ {
-		for y := range h {
-			for _, seq := range s.groups {
-				inner := -1
-				for _, k := range seq {
-					runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
-					mn, mx := s.minHi[k], s.maxLo[k]
-					for j := 0; j < len(runs); j += 2 {
-						a, b := y*w+int(runs[j])-x0, y*w+int(runs[j+1])-x0
-						if pass == 0 {
-							// NaN compares false: cells with no value are left out.
-							for i := a; i < b; i++ {
-								if hi[i] < mn {
-									mn = hi[i]
-								}
-								if lo[i] > mx {
-									mx = lo[i]
-								}
-							}
-							continue
+	if cap(s.rowLo) < h*nm {
+		s.rowLo, s.rowHi = make([]float64, h*nm), make([]float64, h*nm)
+	}
+	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
+	for y := range h {
+		for _, seq := range s.groups {
+			inner := -1
+			for _, k := range seq {
+				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
+				mn, mx := s.minHi[k], s.maxLo[k]
+				rl, rh := math.Inf(1), math.Inf(-1)
+				for j := 0; j < len(runs); j += 2 {
+					// NaN compares false: cells with no value are left out.
+					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
+						if hi[i] < mn {
+							mn = hi[i]
 						}
-						for i := a; i < b; i++ {
-							if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
-								s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
-								lo[i], hi[i] = s.one[0], s.one[0]
-							}
+						if lo[i] > mx {
+							mx = lo[i]
+						}
+						if lo[i] < rl {
+							rl = lo[i]
+						}
+						if hi[i] > rh {
+							rh = hi[i]
 						}
 					}
-					s.minHi[k], s.maxLo[k] = mn, mx
-					inner = k
 				}
+				s.minHi[k], s.maxLo[k] = mn, mx
+				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
+				inner = k
+			}
+		}
+	}
+	for y := range h {
+		for _, seq := range s.groups {
+			inner := -1
+			for _, k := range seq {
+				mn, mx := s.minHi[k], s.maxLo[k]
+				if !(rowLo[y*nm+k] <= mn || rowHi[y*nm+k] >= mx) {
+					inner = k
+					continue
+				}
+				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
+				for j := 0; j < len(runs); j += 2 {
+					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
+						if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
+							s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
+							lo[i], hi[i] = s.one[0], s.one[0]
+						}
+					}
+				}
+				inner = k
 			}
 		}
 	}
