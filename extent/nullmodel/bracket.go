@@ -182,7 +182,8 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // anchor are the exact distances at the super-tile's centre minus
 // pathBound, and the super-tile's candidates come from one geodesy.Index
 // query, as in Distances. A cell whose patch bracket still fails is
-// computed exactly: the smallest geodesic to the patch's measured sites,
+// computed exactly: the smallest geodesic to the patch's measured sites
+// whose brackets reach the smallest upper end (the others are farther),
 // which is Index.Nearest's value bit for bit.
 func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
@@ -470,13 +471,27 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 			if !ok || !b.pending[i] {
 				continue
 			}
-			if b.cell(i, st, (dr+patchK)*patchP+dc+patchK) {
+			j := (dr+patchK)*patchP + dc + patchK
+			if b.cell(i, st, j) {
 				continue
+			}
+			// Measure the cell against the sites whose bracket reaches the
+			// smallest upper end: the others are farther.
+			t, su, cu := st.t[j], st.sa[j], st.ca[j]
+			minHi := math.Inf(1)
+			for q := range b.measured {
+				if _, h := taylorBracket(&b.measured[q], t, su, cu); h < minHi {
+					minHi = h
+				}
 			}
 			lat, lon := ll.lat(ra+dr), ll.lon(ca+dc)
 			d := math.Inf(1)
 			for q := range b.measured {
-				d = math.Min(d, geodesy.Distance(lat, lon, b.measured[q].slat, b.measured[q].slon))
+				m := &b.measured[q]
+				if l, _ := taylorBracket(m, t, su, cu); l > minHi {
+					continue
+				}
+				d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))
 			}
 			b.lo[i], b.hi[i] = d, d
 		}
