@@ -14,9 +14,11 @@ import (
 // TestDemoOutputsUnchanged runs the demo as testdata/demo_golden.sh does
 // (from an empty folder, --out demo) and compares the SHA-256 of its
 // results.json and scores.csv with testdata/demo.sha256, which that script
-// wrote from the code before the pipeline moved out of this package
-// (commit 84c59ed). A change that alters these outputs on purpose
-// regenerates the file with the script and says why in its commit.
+// wrote (first from the code before the pipeline moved out of this
+// package, commit 84c59ed; again at the merge of issue 11, whose bounded
+// null moved the sorting-bias numbers). A change that alters these outputs
+// on purpose regenerates the file with the script and says why in its
+// commit.
 func TestDemoOutputsUnchanged(t *testing.T) {
 	f, err := os.Open(filepath.Join("testdata", "demo.sha256"))
 	if err != nil {

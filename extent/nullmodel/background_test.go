@@ -10,7 +10,8 @@ import (
 // TestBackgroundBruteForce checks Mean, Median and SortingBias against a
 // direct computation written here (sums in float64, an exact weighted
 // median from the sorted cells), on random distances and weights split over
-// three extents and added row by row in two different orders.
+// three extents and added row by row in two different orders, and as
+// prepared rows (Row, Tally) run by run.
 func TestBackgroundBruteForce(t *testing.T) {
 	r := rand.New(rand.NewPCG(21, 22))
 	n := 5000
@@ -30,10 +31,35 @@ func TestBackgroundBruteForce(t *testing.T) {
 	for i := n - 100; i >= 0; i -= 100 {
 		addMasked(&rev, dist[i:i+100], mask[i:i+100], wts[i:i+100])
 	}
+	// The same cells as prepared rows added run by run through tallies.
+	var rows Background
+	for i := 0; i < n; i += 100 {
+		var r Row
+		r.Set(dist[i:i+100], wts[i:i+100])
+		tl := rows.Tally()
+		for k := range 3 {
+			for a := 0; a < 100; {
+				if mask[i+a]>>uint(k)&1 == 0 {
+					a++
+					continue
+				}
+				z := a
+				for z < 100 && mask[i+z]>>uint(k)&1 != 0 {
+					z++
+				}
+				tl.Add(k, &r, a, z)
+				a = z
+			}
+		}
+		tl.Done()
+	}
 	test := []float64{900, 1500, 12000, 40000}
 	for k := range 3 {
 		if fwd.Mean(k) != rev.Mean(k) || fwd.Median(k) != rev.Median(k) {
 			t.Errorf("extent %d: row order changes the result", k)
+		}
+		if rows.Mean(k) != fwd.Mean(k) || rows.Median(k) != fwd.Median(k) || rows.Area(k) != fwd.Area(k) {
+			t.Errorf("extent %d: rows through tallies give mean %v median %v, Add %v and %v", k, rows.Mean(k), rows.Median(k), fwd.Mean(k), fwd.Median(k))
 		}
 		type cw struct {
 			d float64
@@ -105,4 +131,34 @@ func addMasked(b *Background, dist []float64, mask []uint64, wts []int64) {
 			b.Add(k, d, w)
 		}
 	}
+}
+
+// TestDistBin checks the histogram's bins: each distance lies in its bin,
+// the bins are contiguous and at most 1/1024 wide (relative), on random
+// distances from 1 mm to 1e8 m and on the bin edges themselves.
+func TestDistBin(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	check := func(d float64) {
+		j := distBin(d)
+		lo, hi := binEdges(j)
+		if !(lo <= d && d < hi) {
+			t.Fatalf("distance %v in bin %d = [%v, %v)", d, j, lo, hi)
+		}
+		if j > 0 && (hi-lo)/lo > 1.0/1024 {
+			t.Fatalf("bin %d = [%v, %v) is %.6f wide", j, lo, hi, (hi-lo)/lo)
+		}
+		if _, prevHi := binEdges(j - 1); j > 0 && prevHi != lo {
+			t.Fatalf("bins %d and %d leave a gap: %v, %v", j-1, j, prevHi, lo)
+		}
+	}
+	for range 100000 {
+		check(math.Exp(-7 + 25*r.Float64()))
+	}
+	for j := 1; j < histLen-1; j += 97 {
+		lo, _ := binEdges(j)
+		check(lo)
+		check(math.Nextafter(lo, 0))
+	}
+	check(0)
+	check(2.0e7)
 }

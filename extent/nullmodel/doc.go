@@ -21,6 +21,14 @@
 // which is what makes the scoring bins exact at the presence values: a
 // point takes its cell's value, as it does on a model raster.
 //
+// A scoring pass needs less than each value: only the bins of the model's
+// layout each cell falls in. On a latitude-longitude grid (NewLonLat),
+// Bracket proves an interval around each cell's distance from a few exact
+// geodesics per block (a second-order bound along the geodesic from an
+// anchor cell, with the Hessian comparison theorem for the ellipsoid) and
+// measures a cell only when its interval straddles a bin edge or is wider
+// than BracketTol; see Bracket.
+//
 // Background gathers, per extent, the area-weighted distribution of those
 // distances, and SortingBias compares it with the test points' distances.
 package nullmodel

@@ -5,19 +5,21 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"math/bits"
 )
 
 // Binary form of a Background, for a run split into shards of grid rows:
 // each shard tallies its rows, writes its Background, and the merge decodes
 // and merges them. Every sum is an integer, so the merged Background is
 // exactly the one a single pass makes, and re-encodes to the same bytes.
+// The form holds the merged state (the partial sums of concurrent Tallies
+// added together): which partial sum a row went to leaves no trace.
 //
 // Little endian:
 //
 //	magic      4 bytes  "ASBG"
 //	version    uint16   BackgroundEncodingVersion
-//	bins       uint32   the histogram's bin count (histLen)
+//	bins       uint32   the histogram's bin count (histLen; the bins follow
+//	                    the float's bits, see distBin)
 //	extents    uint32   count, then per extent:
 //	             area int64, sum high uint64, sum low uint64,
 //	             nonzero bins uint32, then per bin: index uint32, area int64
@@ -26,13 +28,15 @@ import (
 
 // BackgroundEncodingVersion is the version of EncodeBackground's byte
 // layout; DecodeBackground refuses any other.
-const BackgroundEncodingVersion uint16 = 1
+// Version 2: bins from the float's bits (27 octaves of 1024 bins);
+// version 1 had logarithmic bins of 0.1%.
+const BackgroundEncodingVersion uint16 = 2
 
 const bgMagic = "ASBG"
 
 // maxBackgroundExtents bounds the extents DecodeBackground accepts: the
 // family holds at most 1024 members (extent.MaxMembers), and each extent
-// with data holds a histogram of some 18,000 bins, so a damaged count
+// with data holds a histogram of some 28,000 bins, so a damaged count
 // cannot ask for unbounded memory.
 const maxBackgroundExtents = 1024
 
@@ -40,16 +44,18 @@ const maxBackgroundExtents = 1024
 // Background.Merge.
 var ErrBackgroundEncoding = errors.New("nullmodel: bad sorting-bias background data")
 
-// EncodeBackground returns the binary form of b (see above). Extents that
+// EncodeBackground returns the binary form of b (see above), its partial
+// sums merged: like a read, it must come after the last Add. Extents that
 // were never added to are stored empty.
 func EncodeBackground(b *Background) []byte {
 	b.mu.Lock()
 	defer b.mu.Unlock()
+	b.flush()
 	out := append([]byte(bgMagic), 0, 0)
 	binary.LittleEndian.PutUint16(out[4:], BackgroundEncodingVersion)
 	out = binary.LittleEndian.AppendUint32(out, uint32(histLen))
-	out = binary.LittleEndian.AppendUint32(out, uint32(len(b.ext)))
-	for _, e := range b.ext {
+	out = binary.LittleEndian.AppendUint32(out, uint32(len(b.merged)))
+	for _, e := range b.merged {
 		out = binary.LittleEndian.AppendUint64(out, uint64(e.area))
 		out = binary.LittleEndian.AppendUint64(out, e.sumHi)
 		out = binary.LittleEndian.AppendUint64(out, e.sumLo)
@@ -116,9 +122,9 @@ func DecodeBackground(data []byte) (*Background, error) {
 	if count > maxBackgroundExtents || uint64(count) > uint64(len(body))/28 {
 		return nil, bad("%d extents do not fit in %d bytes", count, len(body))
 	}
-	b := &Background{ext: make([]bgExtent, count)}
-	for k := range b.ext {
-		e := &b.ext[k]
+	b := &Background{merged: make([]bgExtent, count), done: true}
+	for k := range b.merged {
+		e := &b.merged[k]
 		e.area, e.sumHi, e.sumLo = int64(u64()), u64(), u64()
 		nb := u32()
 		if short || uint64(nb) > uint64(len(body))/12 {
@@ -143,6 +149,9 @@ func DecodeBackground(data []byte) (*Background, error) {
 				return nil, bad("extent %d: bins add up to more than the area %d", k, e.area)
 			}
 		}
+		if nb == 0 && (e.sumHi != 0 || e.sumLo != 0) {
+			return nil, bad("extent %d: a distance sum without area", k)
+		}
 		if sum != e.area {
 			return nil, bad("extent %d: bins add up to %d, not the area %d", k, sum, e.area)
 		}
@@ -154,37 +163,28 @@ func DecodeBackground(data []byte) (*Background, error) {
 }
 
 // Merge adds o's sums to b's, extent by extent: the result is the
-// Background of both sets of cells, whatever the order of merges. It
-// refuses sums that would overflow (wrapping ErrBackgroundEncoding).
+// Background of both sets of cells, whatever the order of merges (every
+// sum is an integer). o is read (its partial sums merged, so no Add may
+// follow); b may still be added to if it was not read yet. It refuses sums
+// that would overflow (wrapping ErrBackgroundEncoding).
 func (b *Background) Merge(o *Background) error {
 	if b == o {
 		return fmt.Errorf("%w: a background merged into itself", ErrBackgroundEncoding)
 	}
 	o.mu.Lock()
 	defer o.mu.Unlock()
+	o.flush()
 	b.mu.Lock()
 	defer b.mu.Unlock()
-	if len(o.ext) > len(b.ext) {
-		b.ext = append(b.ext, make([]bgExtent, len(o.ext)-len(b.ext))...)
+	if b.done {
+		var err error
+		b.merged, err = addExtents(b.merged, o.merged)
+		return err
 	}
-	for k := range o.ext {
-		e, f := &b.ext[k], &o.ext[k]
-		area := e.area + f.area
-		lo, carry := bits.Add64(e.sumLo, f.sumLo, 0)
-		hi, over := bits.Add64(e.sumHi, f.sumHi, carry)
-		if area < e.area || over != 0 {
-			return fmt.Errorf("%w: extent %d: the sums overflow", ErrBackgroundEncoding, k)
-		}
-		e.area, e.sumHi, e.sumLo = area, hi, lo
-		if f.hist == nil {
-			continue
-		}
-		if e.hist == nil {
-			e.hist = make([]int64, histLen)
-		}
-		for j, a := range f.hist {
-			e.hist[j] += a
-		}
-	}
-	return nil
+	sh := &b.shards[0]
+	sh.mu.Lock()
+	defer sh.mu.Unlock()
+	var err error
+	sh.ext, err = addExtents(sh.ext, o.merged)
+	return err
 }

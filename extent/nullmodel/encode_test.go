@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+	"sync"
 	"testing"
 )
 
@@ -79,12 +80,81 @@ func TestDecodeBackgroundRefuses(t *testing.T) {
 	// An extent whose area disagrees with its bins, resealed.
 	b := &Background{}
 	b.Add(0, []float64{10, 20}, []int64{5, 6})
-	b.ext[0].area = 12
+	b.get(0).area = 12
 	if _, err := DecodeBackground(EncodeBackground(b)); !errors.Is(err, ErrBackgroundEncoding) {
 		t.Errorf("bins not adding up to the area: err %v", err)
 	}
-	b.ext[0].area = -11
+	b.get(0).area = -11
 	if _, err := DecodeBackground(EncodeBackground(b)); !errors.Is(err, ErrBackgroundEncoding) {
 		t.Errorf("negative area: err %v", err)
+	}
+}
+
+// TestBackgroundEncodesMergedPartialSums: rows tallied by concurrent
+// goroutines (so into several locked partial sums) encode to the same bytes
+// as the same rows added one by one, and a Background that merged a decoded
+// part before its own rows were added equals the whole too.
+func TestBackgroundEncodesMergedPartialSums(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 5))
+	const rows, cols = 64, 50
+	dist := make([][]float64, rows)
+	w := make([][]int64, rows)
+	for r := range rows {
+		dist[r], w[r] = make([]float64, cols), make([]int64, cols)
+		for c := range cols {
+			dist[r][c], w[r][c] = rng.Float64()*3e6, int64(rng.IntN(1<<30))
+		}
+	}
+	add := func(b *Background, r int) {
+		var row Row
+		row.Set(dist[r], w[r])
+		tl := b.Tally()
+		defer tl.Done()
+		tl.Add(r%3, &row, 0, cols/2)
+		tl.Add(3, &row, cols/3, cols)
+	}
+	seq := &Background{}
+	for r := range rows {
+		add(seq, r)
+	}
+	conc := &Background{}
+	var wg sync.WaitGroup
+	for g := range 8 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for r := g; r < rows; r += 8 {
+				add(conc, r)
+			}
+		}()
+	}
+	wg.Wait()
+	used := 0
+	for i := range conc.shards {
+		if len(conc.shards[i].ext) > 0 {
+			used++
+		}
+	}
+	want := EncodeBackground(seq)
+	if !bytes.Equal(EncodeBackground(conc), want) {
+		t.Errorf("concurrent tallies (%d partial sums used) encode differently from sequential adds", used)
+	}
+	part := &Background{}
+	for r := range rows / 2 {
+		add(part, r)
+	}
+	d, err := DecodeBackground(EncodeBackground(part))
+	if err != nil {
+		t.Fatal(err)
+	}
+	late := &Background{}
+	if err := late.Merge(d); err != nil {
+		t.Fatal(err)
+	}
+	for r := rows / 2; r < rows; r++ {
+		add(late, r)
+	}
+	if !bytes.Equal(EncodeBackground(late), want) {
+		t.Error("merge then adds encodes differently from the whole")
 	}
 }

@@ -19,6 +19,7 @@ type Centres func(row, c0, c1 int, lons, lats []float64)
 type Field struct {
 	ix      *geodesy.Index
 	centres Centres
+	ll      *lonLat // set by NewLonLat: the fast path of Bracket
 }
 
 // New returns the distance field of the sites of ix on the grid described by
@@ -40,6 +41,7 @@ type scratch struct {
 	lons, lats []float64
 	cands      []int
 	lb         []float64
+	pending    []bool
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}

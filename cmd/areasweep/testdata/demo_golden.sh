@@ -8,7 +8,10 @@
 # its message.
 #
 # The committed file was first written by this script at commit 84c59ed,
-# before the pipeline moved out of cmd/areasweep (issue 9).
+# before the pipeline moved out of cmd/areasweep (issue 9), and rewritten
+# by it at the merge of issue 11 (the distance-only null's bounded cells:
+# the sorting-bias background is tallied from bracket midpoints and binned
+# on the float's bits, so its means and medians moved by at most 0.03%).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -15,7 +15,8 @@
 // extent. Options.Rows lets a caller see each row's values and area
 // weights (the null's sorting-bias tally). Options.RowRange restricts a
 // pass to a range of grid rows (a shard's share of a run): passes over
-// ranges that split the grid add up exactly to the whole pass. A panic on a worker ends the
+// ranges that split the grid add up exactly to the whole pass, and
+// Options.Rows sees the same values in them. A panic on a worker ends the
 // pass with an *InternalError instead of the process.
 //
 // The first model's pass can also record the valid cells it meets

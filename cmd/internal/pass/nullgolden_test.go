@@ -18,7 +18,8 @@ import (
 // cell areas in integer units) and checks each extent's area-weighted AUC
 // against scikit-learn's roc_auc_score with sample_weight (golden.py), to
 // 1e-9 (our tolerance: the integer rounding of cell areas moves the AUC by
-// about 1e-13).
+// about 1e-13), and the sorting-bias tally fed from the pass's rows (the
+// bracket midpoints) against numpy's background mean and median.
 func TestNullGoldenAUC(t *testing.T) {
 	data, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "nullmodel", "golden.json"))
 	if err != nil {
@@ -35,9 +36,11 @@ func TestNullGoldenAUC(t *testing.T) {
 		}
 		Mask    []uint64
 		Extents []struct {
-			Name string
-			Bit  uint64
-			AUC  float64
+			Name              string
+			Bit               uint64
+			AUC               float64
+			BackgroundMeanM   float64 `json:"background_mean_m"`
+			BackgroundMedianM float64 `json:"background_median_m"`
 		}
 	}
 	if err := json.Unmarshal(data, &gd); err != nil {
@@ -56,7 +59,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
+	v := NewVirtual(g, DistanceNull(g, ix))
 	var members []extent.Member
 	for _, e := range gd.Extents {
 		members = append(members, extent.Member{ID: e.Name, Status: extent.StatusOK})
@@ -74,11 +77,35 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	accs, _, err := v.Score(g, fam, layout, Options{Workers: 2})
+	// The sorting-bias tally sees the pass's values, as the run's does.
+	var bg nullmodel.Background
+	rows := func(row, c0 int, vals []float64, w []int64) {
+		for k := range fam.Members {
+			var d []float64
+			var wk []int64
+			for i, x := range vals {
+				if fam.Has(k, row*g.Width+c0+i) {
+					d, wk = append(d, -x), append(wk, w[i])
+				}
+			}
+			bg.Add(k, d, wk)
+		}
+	}
+	accs, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: rows})
 	if err != nil {
 		t.Fatal(err)
 	}
 	for k, e := range gd.Extents {
+		// Tolerances (our choice, see nullmodel.BracketTol): the pass hands
+		// the tally midpoints within 0.1% of each distance, so the mean is
+		// within 0.1% and the median within 0.1% plus one histogram bin
+		// (0.098%) of numpy's exact values.
+		if m := bg.Mean(k); math.Abs(m-e.BackgroundMeanM) > nullmodel.BracketTol*e.BackgroundMeanM {
+			t.Errorf("%s: background mean %.3f m, numpy %.3f m", e.Name, m, e.BackgroundMeanM)
+		}
+		if m := bg.Median(k); math.Abs(m-e.BackgroundMedianM) > (nullmodel.BracketTol+1.0/1024)*e.BackgroundMedianM {
+			t.Errorf("%s: background median %.3f m, numpy %.3f m", e.Name, m, e.BackgroundMedianM)
+		}
 		var test []float64
 		for i, c := range cells {
 			if ok[i] && gd.Mask[c]&e.Bit != 0 {
@@ -200,7 +227,7 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		return evs, scs
 	}
 	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}), 0, 1)
-	null, _ := evals(NewVirtual(g, nullmodel.New(ix, CellCentres(g))), -3e6, 0)
+	null, _ := evals(NewVirtual(g, DistanceNull(g, ix)), -3e6, 0)
 	d := metrics.Draws{N: len(cells), B: 20, Seed: 7}
 	for k, e := range gd.Extents {
 		if math.Abs(modelScores[k].AUC-e.ModelAUC) > 1e-9 {

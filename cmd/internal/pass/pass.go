@@ -163,6 +163,13 @@ var ErrNoData = errors.New("pass: the raster has no cell with data")
 type block struct {
 	x0, y0, w, h int
 	buf          []float64
+	shown        []float64 // what Options.Rows and the preview see (nil: buf)
+}
+
+// shower is a Source whose blocks show Options.Rows and the preview other
+// values than those scored (a Virtual on a BoundedField: see Virtual).
+type shower interface {
+	shownValues(n int) []float64
 }
 
 // each reads every block in order and sends it to out, still encoded (the
@@ -177,7 +184,7 @@ func (r *Raster) each(out chan<- block, free chan []float64) error {
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
 			return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, b.X0, b.Y0, gdalmsg.Cause(err.Error()))
 		}
-		out <- block{b.X0, b.Y0, b.W, b.H, buf}
+		out <- block{x0: b.X0, y0: b.Y0, w: b.W, h: b.H, buf: buf}
 	}
 	return nil
 }
@@ -312,7 +319,9 @@ type Options struct {
 	// the values (NaN: no value) and the cells' integer area weights.
 	// Which member holds a cell the caller asks the family (Family.Span,
 	// Family.Has). It is called from the workers at once and must not keep
-	// the slices.
+	// the slices. For a Virtual on a BoundedField the values are the
+	// midpoints of each cell's own bounds (see Virtual): the same in a
+	// pass over a RowRange as over every row.
 	Rows func(row, c0 int, vals []float64, weights []int64)
 	// RowRange, when set, restricts the pass to the grid rows it covers
 	// (one shard's share of a run): blocks outside are not read, a block
@@ -429,6 +438,9 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 					break
 				}
 				p.decode(b.buf)
+				if sh, ok := src.(shower); ok {
+					b.shown = sh.shownValues(b.w * b.h)
+				}
 				scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt)
 				doneBlocks <- struct{}{}
 			}
@@ -518,9 +530,13 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		row := b.y0 + y
 		base := row*g.Width + b.x0
 		vals := b.buf[y*b.w : (y+1)*b.w]
+		shown := vals
+		if b.shown != nil {
+			shown = b.shown[y*b.w : (y+1)*b.w]
+		}
 		if pv != nil {
 			if prow := pv.srcRow[row]; prow >= 0 {
-				for x, v := range vals {
+				for x, v := range shown {
 					if pc := pv.srcCol[b.x0+x]; pc >= 0 && valid(v) {
 						pv.Values[prow*pv.Width+pc] = v
 					}
@@ -544,7 +560,7 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		}
 		ws.areas, weights = RowWeights(g, row, b.x0, x1, ws.areas, weights)
 		if opt.Rows != nil {
-			opt.Rows(row, b.x0, vals, weights)
+			opt.Rows(row, b.x0, shown, weights)
 		}
 		vword, vbits := -1, uint64(0)
 		for x, v := range vals {

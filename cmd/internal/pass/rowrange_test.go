@@ -16,18 +16,23 @@ type scoredShare struct {
 	stats Stats
 	valid extent.Valid
 	pv    *Preview
-	rows  []int // cells seen by Options.Rows, per row
+	rows  []int     // cells seen by Options.Rows, per row
+	vals  []float64 // the value Options.Rows saw per cell (NaN: not seen)
 }
 
 // scoreRows runs one pass over rows rr (nil: every row) of src.
 func scoreRows(t *testing.T, g *extent.Grid, fam *extent.Family, layout *metrics.Layout, workers int, rr *RowRange,
 	score func(*extent.Grid, *extent.Family, *metrics.Layout, Options) ([]*metrics.Accumulator, Stats, error)) scoredShare {
 	t.Helper()
-	sh := scoredShare{valid: extent.NewValid(g.Cells()), pv: NewPreview(g, 37), rows: make([]int, g.Height)}
+	sh := scoredShare{valid: extent.NewValid(g.Cells()), pv: NewPreview(g, 37), rows: make([]int, g.Height), vals: make([]float64, g.Cells())}
+	for i := range sh.vals {
+		sh.vals[i] = math.NaN()
+	}
 	var mu sync.Mutex
 	opt := Options{Workers: workers, Valid: sh.valid, Preview: sh.pv, RowRange: rr, Rows: func(row, c0 int, vals []float64, w []int64) {
 		mu.Lock()
 		sh.rows[row] += len(vals)
+		copy(sh.vals[row*g.Width+c0:], vals)
 		mu.Unlock()
 	}}
 	var err error
@@ -40,7 +45,9 @@ func scoreRows(t *testing.T, g *extent.Grid, fam *extent.Family, layout *metrics
 // TestRowRangesAddUp: passes over row ranges that split the grid (cut
 // inside raster blocks and inside the virtual's blocks) add up to the
 // whole pass exactly: every accumulator's encoding, the statistics, the
-// valid bits, the preview and the rows seen, for a raster (256 x 256
+// valid bits, the preview and the rows seen with their values bit for bit
+// (the null's bounded values: a range's blocks must pick the same cells
+// to compute exactly as the whole pass's, for the sorting-bias tally), for a raster (256 x 256
 // tiles) and the virtual null, with 1 and 2 workers. An empty range scores
 // nothing, and a range past the grid is cut to it.
 func TestRowRangesAddUp(t *testing.T) {
@@ -103,6 +110,9 @@ func TestRowRangesAddUp(t *testing.T) {
 					}
 					for row, n := range sh.rows {
 						sum.rows[row] += n
+						if n > 0 {
+							copy(sum.vals[row*g.Width:(row+1)*g.Width], sh.vals[row*g.Width:(row+1)*g.Width])
+						}
 					}
 				}
 				for k := range whole.accs {
@@ -121,6 +131,15 @@ func TestRowRangesAddUp(t *testing.T) {
 				}
 				if fmt.Sprint(sum.rows) != fmt.Sprint(whole.rows) {
 					t.Errorf("%s: rows seen differ from the whole pass", name)
+				}
+				diff := 0
+				for i, x := range whole.vals {
+					if y := sum.vals[i]; math.Float64bits(x) != math.Float64bits(y) && !(math.IsNaN(x) && math.IsNaN(y)) {
+						diff++
+					}
+				}
+				if diff > 0 {
+					t.Errorf("%s: the rows hook saw %d values that differ from the whole pass", name, diff)
 				}
 			}
 		}

@@ -5,6 +5,8 @@ import (
 	"math"
 
 	"areasweep/extent"
+	"areasweep/extent/geodesy"
+	"areasweep/extent/nullmodel"
 	"areasweep/metrics"
 )
 
@@ -18,14 +20,48 @@ type Field interface {
 	Fill(x0, y0, w, h int, need []uint64, dst []float64)
 }
 
-// VirtualBlock is the side, in cells, of the blocks of a Virtual.
-const VirtualBlock = 256
+// Binner places a value in a layout's bins (*metrics.Layout).
+type Binner = interface {
+	Locate(v float64) (bin, hist int)
+}
+
+// BoundedField is a Field that can bound its values instead of computing
+// each one: Bounds sets lo[i] <= value <= hi[i] for the cells Fill would
+// compute, with bins.Locate(lo[i]) == bins.Locate(hi[i]) (Locate is
+// monotone, so the value shares those bins), lo[i] == hi[i] equal to Fill's
+// value where it computed the cell, NaN where Fill gives NaN. A cell's
+// bounds must not depend on the block. A Virtual scores such a field
+// exactly as it would score Fill's values: see Virtual.
+type BoundedField interface {
+	Field
+	Bounds(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64)
+}
+
+// VirtualBlock is the side, in cells, of the blocks of a Virtual: a
+// multiple of nullmodel.SuperTile (15), so that no block shares the
+// distance field's super-tiles with another.
+const VirtualBlock = 240
 
 // Virtual is a model on the grid whose values a Field computes: it goes
 // through exactly the scoring path of a Raster (same workers taking block
 // indices, same layout lookup and accumulators), with each worker's Source
 // computing a block instead of reading it. Only cells that belong to some
 // extent are computed.
+//
+// For a BoundedField the block's values are the midpoints of the bounds,
+// not the values themselves, chosen so that every accumulator is what the
+// exact values give: a midpoint lies in its value's exact and histogram
+// bins (bins are intervals), and within each block, for every member that
+// a cell is added to (the smallest member of each nested group holding
+// it), every cell whose bounds reach the block's smallest upper bound
+// (largest lower bound) is computed exactly with Fill. Then the block's
+// minimum and maximum on that member are exact values, and every other
+// cell lies strictly between them, so the merged minimum, maximum and
+// the area at the minimum are exact too. Options.Rows and the preview see
+// the midpoints of each cell's own bounds (exact where the bounds are),
+// not the values exactExtremes computed: those cells depend on the block,
+// so a pass over a range of rows (a shard) would show other values than
+// a pass over every row; the bounds depend on the cell alone.
 type Virtual struct {
 	g     *extent.Grid
 	field Field
@@ -42,11 +78,20 @@ func (v *Virtual) Blocks() int {
 // virtualSource is one worker's Source of a Virtual: it computes the cells
 // of a block that lie in some member of the family.
 type virtualSource struct {
-	v     *Virtual
-	fam   *extent.Family
-	outer []int // the largest member of each group: their union is every member's cells
-	need  []uint64
-	span  extent.SpanScratch
+	v      *Virtual
+	fam    *extent.Family
+	groups [][]int
+	outer  []int // the largest member of each group: their union is every member's cells
+	need   []uint64
+	span   extent.SpanScratch
+	// bounded path
+	bf           BoundedField
+	bins         Binner
+	lo, hi       []float64
+	shown        []float64 // the midpoints of the cells' own bounds
+	minHi, maxLo []float64 // per member: smallest upper and largest lower bound in the block
+	rowLo, rowHi []float64 // per row and member: smallest lower and largest upper bound
+	one          [1]float64
 }
 
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
@@ -54,6 +99,47 @@ type virtualSource struct {
 func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	need := s.need[:w*h]
 	clear(need)
+	s.markNeed(x0, y0, w, h, need)
+	if s.bf == nil {
+		s.v.field.Fill(x0, y0, w, h, need, buf[:w*h])
+		return nil
+	}
+	lo, hi := s.lo[:w*h], s.hi[:w*h]
+	s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
+	// The values shown to Options.Rows and the preview are the midpoints
+	// of the cells' own bounds, taken before exactExtremes: which cells it
+	// computes depends on the block and on the family around the cell
+	// (a shard's blocks are cut at its rows, and its family is clipped only
+	// in its rows), the bounds on the cell alone.
+	shown := s.shown[:w*h]
+	for i := range shown {
+		shown[i] = lo[i]
+		if lo[i] != hi[i] {
+			shown[i] = (lo[i] + hi[i]) / 2
+		}
+	}
+	s.exactExtremes(x0, y0, w, h, lo, hi)
+	for i := range buf[:w*h] {
+		buf[i] = lo[i]
+		if lo[i] != hi[i] {
+			buf[i] = (lo[i] + hi[i]) / 2
+		}
+	}
+	return nil
+}
+
+// shownValues returns the values of the last block for Options.Rows and
+// the preview (see ReadBlock), nil when they are the block's values.
+func (s *virtualSource) shownValues(n int) []float64 {
+	if s.bf == nil {
+		return nil
+	}
+	return s.shown[:n]
+}
+
+// markNeed sets need[y*w+x] for every cell of the block at (x0, y0) of w x
+// h cells that lies in some member.
+func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 	for y := range h {
 		for _, k := range s.outer {
 			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
@@ -64,8 +150,75 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 			}
 		}
 	}
-	s.v.field.Fill(x0, y0, w, h, need, buf[:w*h])
-	return nil
+}
+
+// exactExtremes computes exactly (lo = hi = Fill's value) every cell of
+// the block that may hold the smallest or the largest value of a member
+// it is added to (see Virtual). A first walk finds each member's smallest
+// upper and largest lower bound in the block and, per row, its smallest
+// lower and largest upper bound; the second walk visits only the rows
+// that can hold such a cell.
+func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
+	nm := len(s.minHi)
+	for k := range s.minHi {
+		s.minHi[k], s.maxLo[k] = math.Inf(1), math.Inf(-1)
+	}
+	if cap(s.rowLo) < h*nm {
+		s.rowLo, s.rowHi = make([]float64, h*nm), make([]float64, h*nm)
+	}
+	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
+	for y := range h {
+		for _, seq := range s.groups {
+			inner := -1
+			for _, k := range seq {
+				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
+				mn, mx := s.minHi[k], s.maxLo[k]
+				rl, rh := math.Inf(1), math.Inf(-1)
+				for j := 0; j < len(runs); j += 2 {
+					// NaN compares false: cells with no value are left out.
+					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
+						if hi[i] < mn {
+							mn = hi[i]
+						}
+						if lo[i] > mx {
+							mx = lo[i]
+						}
+						if lo[i] < rl {
+							rl = lo[i]
+						}
+						if hi[i] > rh {
+							rh = hi[i]
+						}
+					}
+				}
+				s.minHi[k], s.maxLo[k] = mn, mx
+				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
+				inner = k
+			}
+		}
+	}
+	for y := range h {
+		for _, seq := range s.groups {
+			inner := -1
+			for _, k := range seq {
+				mn, mx := s.minHi[k], s.maxLo[k]
+				if !(rowLo[y*nm+k] <= mn || rowHi[y*nm+k] >= mx) {
+					inner = k
+					continue
+				}
+				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
+				for j := 0; j < len(runs); j += 2 {
+					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
+						if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
+							s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
+							lo[i], hi[i] = s.one[0], s.one[0]
+						}
+					}
+				}
+				inner = k
+			}
+		}
+	}
 }
 
 func (s *virtualSource) Close() error { return nil }
@@ -82,8 +235,16 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 	for i, seq := range groups {
 		outer[i] = seq[len(seq)-1]
 	}
+	bf, _ := v.field.(BoundedField)
 	open := func() (Source, error) {
-		return &virtualSource{v: v, fam: fam, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}, nil
+		src := &virtualSource{v: v, fam: fam, groups: groups, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}
+		if bf != nil {
+			src.bf, src.bins = bf, layout
+			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
+			src.shown = make([]float64, VirtualBlock*VirtualBlock)
+			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
+		}
+		return src, nil
 	}
 	p := plan{width: g.Width, height: g.Height, blockW: VirtualBlock, blockH: VirtualBlock, open: open, decode: func([]float64) {}}
 	return score(p, g, fam, groups, layout, opt)
@@ -118,4 +279,17 @@ func CellCentres(g *extent.Grid) func(row, c0, c1 int, lons, lats []float64) {
 		}
 		g.ToLonLat(xs, ys, lons[:c1-c0], lats[:c1-c0])
 	}
+}
+
+// DistanceNull returns the distance-only null's field on g for the sites of
+// ix: on a latitude-longitude grid the one of nullmodel.NewLonLat, whose
+// bounds let a pass compute few cells exactly, otherwise nullmodel.New on
+// the cell centres transformed to WGS84 (every cell exact). Both give the
+// same values.
+func DistanceNull(g *extent.Grid, ix *geodesy.Index) *nullmodel.Field {
+	if g.Geographic {
+		gt := g.GeoTransform
+		return nullmodel.NewLonLat(ix, gt[0], gt[1], gt[3], gt[5])
+	}
+	return nullmodel.New(ix, CellCentres(g))
 }

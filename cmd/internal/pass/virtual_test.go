@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -29,7 +30,7 @@ func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := nullmodel.New(ix, CellCentres(g))
+	f := DistanceNull(g, ix)
 	mask := make([]uint64, g.Cells())
 	for i := range mask {
 		if i%97 != 0 {
@@ -86,11 +87,12 @@ func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
 }
 
 // TestVirtualEqualsRaster is the property the null model rests on: a
-// GeoTIFF holding the null's values scores exactly what the virtual null
-// scores (values at the points bit for bit, and every accumulator: area
-// at each layout value, range, cells, area, and all metrics), for 1 and 2
+// GeoTIFF holding the null's exact values (Fill) scores exactly what the
+// virtual null scores from its bounds and midpoints (values at the points
+// bit for bit, and every accumulator: area at each layout value, range,
+// cells, area, and all metrics, the Boyce index included), for 1 and 2
 // workers, although the GeoTIFF's blocks (64 x 64) differ from the
-// virtual's (256 x 256).
+// virtual's (240 x 240).
 func TestVirtualEqualsRaster(t *testing.T) {
 	g, v, f, fam := nullSetup(t)
 	all := make([]float64, g.Cells())
@@ -116,6 +118,19 @@ func TestVirtualEqualsRaster(t *testing.T) {
 	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
 	if err != nil {
 		t.Fatal(err)
+	}
+	// Most cells must take the bounded path (midpoints), or this test
+	// would not test it.
+	lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
+	f.Bounds(0, 0, g.Width, g.Height, nil, layout, lo, hi)
+	bounded := 0
+	for i := range lo {
+		if lo[i] != hi[i] {
+			bounded++
+		}
+	}
+	if bounded < g.Cells()/2 {
+		t.Errorf("%d of %d cells bounded, want most", bounded, g.Cells())
 	}
 	describe := func(accs []*metrics.Accumulator, st Stats) string {
 		s := fmt.Sprint(st)
@@ -203,41 +218,114 @@ func TestRowsHook(t *testing.T) {
 }
 
 // BenchmarkNullPass measures a whole pass of the distance-only null (the
-// field computed on the workers, then the same scoring as a raster) on a
-// 2000 x 2000 grid of 0.01-degree cells (4 million cells, about 1 km) with
-// 200 training points in clusters, beside BenchmarkScorePass for a raster
-// of the same size: cells per second.
+// field's bounds computed on the workers, then the same scoring as a
+// raster, and a sorting-bias tally on the rows as the run keeps) on the
+// study of the whole-sweep benchmark (cmd/sweepbench): a 60 x 40 degree
+// latitude-longitude window in 4 million cells (27 million in
+// BenchmarkNullVsRaster), 500 training and 500 test
+// points drawn from a bump of suitability, 8 extents, the layout of the
+// points' values and a 4096-bin histogram over [-FarthestBound, 0]. Set
+// beside BenchmarkScorePass (a raster of the same size, 8 extents, same
+// worker count): ns per cell.
 func BenchmarkNullPass(b *testing.B) {
-	w, h := 2000, 2000
-	g, r := openTestRaster(b, w, h)
-	r.Close()
-	var lats, lons []float64
-	for i := range 200 {
-		cx, cy := 3+14*float64(i%5)/4, 32+14*float64((i/5)%4)/3
-		lats = append(lats, cy+0.8*math.Sin(float64(i)*1.7))
-		lons = append(lons, cx+0.8*math.Cos(float64(i)*2.3))
-	}
-	ix, err := geodesy.NewIndex(lats, lons)
-	if err != nil {
-		b.Fatal(err)
-	}
-	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
-	layout, err := metrics.NewLayout(lats, -3e6, 0, 4096)
-	if err != nil {
-		b.Fatal(err)
-	}
-	fam := fullFamily(g, 8)
-	for _, workers := range []int{1, 2} {
-		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", w*h, workers), func(b *testing.B) {
-			b.ReportAllocs()
-			for b.Loop() {
-				if _, _, err := v.Score(g, fam, layout, Options{Workers: workers}); err != nil {
-					b.Fatal(err)
+	for _, cells := range []float64{4e6} {
+		g, v, layout, fam := nullBenchStudy(b, cells)
+		for _, workers := range []int{1, 2} {
+			b.Run(fmt.Sprintf("cells=%d,extents=8,workers=%d", g.Cells(), workers), func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					var bg nullmodel.Background
+					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: tallyRows(g, fam, &bg)}); err != nil {
+						b.Fatal(err)
+					}
 				}
-			}
-			b.ReportMetric(float64(w*h)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
-		})
+				b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(g.Cells()), "ns/cell")
+			})
+		}
+		g.Close()
 	}
+}
+
+// nullBenchStudy returns the null of the whole-sweep benchmark's study in
+// about cells cells (see BenchmarkNullPass): the grid (to be closed), the
+// virtual null, its layout and a family of 8 extents covering the grid.
+func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
+	h := int(math.Round(math.Sqrt(cells / 1.5)))
+	w := int(math.Round(float64(h) * 1.5))
+	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
+	if err != nil {
+		b.Fatal(err)
+	}
+	r := rand.New(rand.NewPCG(7, 8))
+	var plats, plons []float64
+	for len(plats) < 1000 {
+		lon, lat := -20+60*r.Float64(), 30+40*r.Float64()
+		d2 := ((lon-10)*(lon-10) + (lat-50)*(lat-50)) / 128
+		if s := math.Exp(-d2); r.Float64() > s*s {
+			continue
+		}
+		plats, plons = append(plats, lat), append(plons, lon)
+	}
+	ix, err := geodesy.NewIndex(plats[:500], plons[:500])
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := DistanceNull(g, ix)
+	v := NewVirtual(g, f)
+	var pc []int
+	for i := range plats {
+		c, row, _ := g.CellOf(plons[i], plats[i])
+		pc = append(pc, row*w+c)
+	}
+	vals, _, _ := v.Sample(g, pc)
+	layout, err := metrics.NewLayout(vals, -f.FarthestBound(w, h, 64), 0, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return g, v, layout, fullFamily(g, 8)
+}
+
+// tallyRows returns a rows hook that adds every row's distances to bg for
+// every member holding them, as the run's sorting-bias tally does.
+func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
+	type scratch struct {
+		span extent.SpanScratch
+		row  nullmodel.Row
+		d    []float64
+	}
+	pool := sync.Pool{New: func() any { return new(scratch) }}
+	return func(row, c0 int, vals []float64, wts []int64) {
+		sc := pool.Get().(*scratch)
+		defer pool.Put(sc)
+		span, r := &sc.span, &sc.row
+		sc.d = sc.d[:0]
+		for _, v := range vals {
+			sc.d = append(sc.d, 0-v)
+		}
+		r.Set(sc.d, wts)
+		t := bg.Tally()
+		defer t.Done()
+		for k := range fam.Members {
+			runs := fam.Span(k, -1, row, c0, c0+len(vals), span)
+			for i := 0; i < len(runs); i += 2 {
+				t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
+			}
+		}
+	}
+}
+
+// mustLayout returns a layout of 1000 values evenly spread over [lo, hi]
+// with 4096 histogram bins on that range.
+func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = lo + (hi-lo)*float64(i)/1000
+	}
+	l, err := metrics.NewLayout(vals, lo, hi, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return l
 }
 
 // TestVirtualProjectedMatchesNearest checks the null's values cell by cell
@@ -309,11 +397,11 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 	}
 }
 
-// panicField is a Field with a bug: it panics on the block at column 256.
+// panicField is a Field with a bug: it panics on the second block of a row.
 type panicField struct{}
 
 func (panicField) Fill(x0, y0, w, h int, need []uint64, dst []float64) {
-	if x0 == 256 {
+	if x0 == VirtualBlock {
 		panic("index out of range in a test field")
 	}
 	for i := range dst[:w*h] {

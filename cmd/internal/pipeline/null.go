@@ -20,7 +20,7 @@ const farthestStep = 64
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
 	d    []float64
-	w    []int64
+	row  nullmodel.Row
 	span extent.SpanScratch
 }
 
@@ -55,29 +55,30 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		return nil, fmt.Errorf("distance-only null: %w", err)
 	}
 	g := s.grid
-	field := nullmodel.New(ix, pass.CellCentres(g))
+	field := pass.DistanceNull(g, ix)
 	dn := &distanceNull{ix: ix}
 	fam := s.fam
-	// Each ok member's cells of the row, taken from its runs, go to its own
-	// tally (the distance is minus the null's value).
+	// The row's distances (minus the null's values) are prepared once; each
+	// ok member's cells of the row, taken from its runs, go to its own
+	// tally.
 	rows := func(row, c0 int, vals []float64, w []int64) {
 		sc := tallyPool.Get().(*tallyScratch)
 		defer tallyPool.Put(sc)
+		sc.d = sc.d[:0]
+		for _, v := range vals {
+			sc.d = append(sc.d, 0-v)
+		}
+		sc.row.Set(sc.d, w)
+		t := dn.bg.Tally()
+		defer t.Done()
 		for k, mem := range fam.Members {
 			if mem.Status != extent.StatusOK {
 				continue
 			}
 			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
-			if len(runs) == 0 {
-				continue
-			}
-			sc.d, sc.w = sc.d[:0], sc.w[:0]
 			for i := 0; i < len(runs); i += 2 {
-				for x := int(runs[i]) - c0; x < int(runs[i+1])-c0; x++ {
-					sc.d, sc.w = append(sc.d, 0-vals[x]), append(sc.w, w[x])
-				}
+				t.Add(k, &sc.row, int(runs[i])-c0, int(runs[i+1])-c0)
 			}
-			dn.bg.Add(k, sc.d, sc.w)
 		}
 	}
 	p := &Plan{Index: i, Model: s.Passes()[i], src: pass.NewVirtual(g, field), rows: rows, null: dn}

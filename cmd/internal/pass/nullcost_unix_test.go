@@ -1,0 +1,78 @@
+//go:build unix
+
+package pass
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"syscall"
+	"testing"
+
+	"areasweep/extent"
+	"areasweep/extent/nullmodel"
+)
+
+// cpuNow returns the process's user plus system CPU time in nanoseconds.
+func cpuNow(tb testing.TB) int64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		tb.Fatal(err)
+	}
+	return ru.Utime.Nano() + ru.Stime.Nano()
+}
+
+// BenchmarkNullVsRaster is the cost criterion of the distance-only null:
+// on the whole-sweep benchmark's study (see BenchmarkNullPass) at 4 and 27
+// million cells, it alternates a pass over a model raster of the same size
+// (Float32, deflate, 256 x 256 tiles, as cmd/sweepbench writes) and the
+// null's pass (bounds, scoring, the sorting-bias tally on every row), both
+// with 2 workers and the same 8 extents, and reports each one's process
+// CPU time (user + system, from getrusage) per cell and their ratio, so
+// that other load on the machine does not enter the comparison.
+func BenchmarkNullVsRaster(b *testing.B) {
+	for _, cells := range []float64{4e6, 27e6} {
+		h := int(math.Round(math.Sqrt(cells / 1.5)))
+		w := int(math.Round(float64(h) * 1.5))
+		path := filepath.Join(b.TempDir(), "model.tif")
+		writeGridRaster(b, path, w, h, false, func(r, c int) float32 {
+			x, y := float64(c)/float64(w)-0.5, float64(r)/float64(h)-0.5
+			return float32(math.Exp(-(x*x+y*y)*8) + 0.02*math.Sin(float64(c)/37)*math.Cos(float64(r)/53))
+		}, "TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE")
+		rg, err := extent.OpenGrid(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		r, err := Open(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		rfam := fullFamily(rg, 8)
+		rlayout := mustLayout(b, 0, 1)
+		g, v, layout, fam := nullBenchStudy(b, cells)
+		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=2", w*h), func(b *testing.B) {
+			var rasterCPU, nullCPU int64
+			for b.Loop() {
+				t0 := cpuNow(b)
+				if _, _, err := r.Score(rg, rfam, rlayout, Options{Workers: 2}); err != nil {
+					b.Fatal(err)
+				}
+				t1 := cpuNow(b)
+				var bg nullmodel.Background
+				if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: tallyRows(g, fam, &bg)}); err != nil {
+					b.Fatal(err)
+				}
+				t2 := cpuNow(b)
+				rasterCPU += t1 - t0
+				nullCPU += t2 - t1
+			}
+			n := float64(b.N) * float64(w*h)
+			b.ReportMetric(float64(rasterCPU)/n, "raster-cpu-ns/cell")
+			b.ReportMetric(float64(nullCPU)/n, "null-cpu-ns/cell")
+			b.ReportMetric(float64(nullCPU)/float64(rasterCPU), "null/raster")
+		})
+		r.Close()
+		rg.Close()
+		g.Close()
+	}
+}

@@ -1,0 +1,590 @@
+package nullmodel
+
+import (
+	"math"
+	"sync"
+
+	"areasweep/extent/geodesy"
+)
+
+// Binner places a value in the bins a scoring pass keeps apart (a metrics
+// Layout's exact and fine-histogram bins: *metrics.Layout satisfies it).
+// Locate must be monotone: v1 <= v2 implies each returned index of v1 is
+// at most that of v2, so that a value between two values that share their
+// bins shares them too.
+type Binner = interface {
+	Locate(v float64) (bin, hist int)
+}
+
+// BracketTol is our choice of the largest relative error of the midpoint
+// of a bracket that Bracket leaves unresolved: (hi - lo)/2 <= BracketTol *
+// lo, so the midpoint is within 0.1% of the cell's distance, the width of
+// Background's histogram bins. The sorting bias is computed from those
+// midpoints.
+const BracketTol = 1e-3
+
+// Patches of the latitude-longitude fast path: anchors every patchP cells
+// along rows and columns (global lattice), patchK cells on each side; the
+// nearest-site candidates are found once per super-tile of superP x superP
+// patches.
+const (
+	patchK = 2
+	patchP = 2*patchK + 1
+	superP = 3
+	// SuperTile is the side, in cells, of the super-tiles; blocks whose
+	// corners are multiples of it share no super-tile.
+	SuperTile = superP * patchP
+)
+
+// Hessian comparison radii of the WGS84 ellipsoid: the Gaussian curvature
+// K = 1/(M N) runs from b^2/a^4 (poles) to 1/b^2 (equator), so
+// sqrt(Kmin) = b/a^2 and sqrt(Kmax) = 1/b.
+var (
+	sqrtKmin = geodesy.SemiMinor / (geodesy.SemiMajor * geodesy.SemiMajor)
+	sqrtKmax = 1 / geodesy.SemiMinor
+)
+
+// maxTaylorDist is the largest distance (m) at which the Taylor bracket is
+// used: the lower Hessian bound cot(r/b)/b stays positive below pi b/2 =
+// 9985 km, its cheap form (hLoFast) holds below b = 6357 km, and the cut
+// locus of a site is about 20 000 km away.
+const maxTaylorDist = 6e6
+
+// lonLat describes a north-up latitude-longitude grid: centre of cell
+// (c, r) at (west + (c+0.5) dlon, north + (r+0.5) dlat) degrees, as
+// extent.Grid.Centre computes it.
+type lonLat struct {
+	west, dlon, north, dlat float64
+	mu                      sync.Mutex
+	rows                    map[[2]int]*stencil // by half side K and row of patches
+}
+
+// stencil holds, for the anchor row of one row of patches, the geodesic
+// from the anchor cell to each cell of its patch: length t and the sine
+// and cosine of its azimuth at the anchor. ok is false when a latitude of
+// the patch lies outside [-90, 90].
+type stencil struct {
+	once   sync.Once
+	ok     bool
+	t      []float64
+	sa, ca []float64
+	tmax   float64
+}
+
+// NewLonLat returns the distance field of the sites of ix on a north-up
+// latitude-longitude grid whose cell (c, r) has its centre at longitude
+// west + (c+0.5) dlon and latitude north + (r+0.5) dlat (dlat < 0), the
+// grid's geotransform. Its Distances and Fill are those of New; its
+// Bracket uses the fast path described there.
+func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
+	ll := &lonLat{west: west, dlon: dlon, north: north, dlat: dlat, rows: map[[2]int]*stencil{}}
+	cen := func(row, c0, c1 int, lons, lats []float64) {
+		lat := north + (float64(row)+0.5)*dlat
+		for c := c0; c < c1; c++ {
+			lons[c-c0] = west + (float64(c)+0.5)*dlon
+			lats[c-c0] = lat
+		}
+	}
+	return &Field{ix: ix, centres: cen, ll: ll}
+}
+
+func (ll *lonLat) lat(r int) float64 { return ll.north + (float64(r)+0.5)*ll.dlat }
+func (ll *lonLat) lon(c int) float64 { return ll.west + (float64(c)+0.5)*ll.dlon }
+
+// stencil returns the stencil of the patches of side 2K+1 cells in row pr
+// (anchor row pr*(2K+1) + K), computing it once.
+func (ll *lonLat) stencil(k, pr int) *stencil {
+	ll.mu.Lock()
+	s := ll.rows[[2]int{k, pr}]
+	if s == nil {
+		s = new(stencil)
+		ll.rows[[2]int{k, pr}] = s
+	}
+	ll.mu.Unlock()
+	s.once.Do(func() {
+		p := 2*k + 1
+		ra := pr*p + k
+		la := ll.lat(ra)
+		if !(math.Abs(la) <= 90) {
+			return
+		}
+		s.t, s.sa, s.ca = make([]float64, p*p), make([]float64, p*p), make([]float64, p*p)
+		for dr := -k; dr <= k; dr++ {
+			lp := ll.lat(ra + dr)
+			if !(math.Abs(lp) <= 90) {
+				return
+			}
+			for dc := -k; dc <= k; dc++ {
+				j := (dr+k)*p + dc + k
+				t, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*ll.dlon)
+				s.t[j] = t
+				s.sa[j], s.ca[j] = math.Sincos(az * math.Pi / 180)
+				s.tmax = math.Max(s.tmax, t)
+			}
+		}
+		// Rounding of the cells' longitudes (the stencil uses dc*dlon) moves
+		// a centre by under 1e-8 m; the bracket's margin covers it.
+		s.ok = true
+	})
+	return s
+}
+
+// Bracket sets, for every cell (x0+x, y0+y) of the block whose need word
+// is not zero (need nil: every cell), lo[i] <= d <= hi[i] around its
+// distance d to the nearest site (the value Distances gives, i = y*w+x),
+// such that -hi[i] and -lo[i] fall in the same bins of bins and
+// hi[i] - lo[i] <= 2 BracketTol lo[i]; where that cannot be shown the cell
+// is computed exactly and lo[i] = hi[i] = d. Cells with no geographic
+// position, and cells not needed, get NaN. A cell's bracket does not
+// depend on the block it is computed in.
+//
+// A Field made by New computes every cell exactly (lo = hi). One made by
+// NewLonLat uses anchors: a cell a measured exactly to each site k that can
+// be nearest around it (f_k(a) = s(a, k) and the azimuth towards k), and,
+// for each cell p near a, a second-order Taylor bound along the geodesic
+// from a to p (length t, initial direction u; on such a grid the same for
+// every anchor of a row, so measured once per row). Along that geodesic
+// gamma, with f = f_k,
+//
+//	f'(0) = cos(beta) = <u, grad f(a)>,  f'' = Hess f(gamma', gamma') = h (1 - f'^2),
+//
+// where h is the curvature of the geodesic circle about k (the Hessian of
+// the distance function across its gradient). The Hessian comparison
+// theorem (e.g. Petersen, Riemannian Geometry, 3rd ed., 2016, sec. 6.4;
+// the ellipsoid's Gaussian curvature lies in [b^2/a^4, 1/b^2]) gives
+//
+//	cot(r/b)/b <= h(r) <= (b/a^2) cot(b r/a^2) <= 1/r
+//
+// while r = f stays below pi b/2, away from the site and its cut locus
+// (about 20 000 km away); both bounds fall with r, and hLoFast bounds the
+// lower one without a tangent. With f(u) in [f(a)-t, f(a)+t] (f is
+// 1-Lipschitz), the second derivative lies in [H1 q1, H2 q2] =: [A, B] with H1 =
+// h_lo(f(a)+t), H2 = 1/(f(a)-t) and q1, q2 the extremes of 1 - f'^2 for f'
+// in [f'(0), f'(0) + t B] (it is >= 0; B first taken as H2, then once more
+// from the result); so
+//
+//	f(p) = f(a) + t f'(0) + int_0^t (t-u) f''(u) du  in  f(a) + t f'(0) + [A, B] t^2/2,
+//
+// widened by a margin (1 mm + 1e-9 f(a)) for PROJ's 15 nm and the rounding
+// of coordinates, and intersected with [f(a)-t, f(a)+t] widened by the
+// same margin. A site nearer the anchor than twice the anchor's largest t,
+// or within that t of 6000 km, gets only the 1-Lipschitz bound. The
+// cell's bracket is the minimum over the measured sites of both ends (a
+// site with f(a) - t above the running upper end changes neither).
+//
+// The anchors: on a global lattice of super-tiles of 15 x 15 cells, the
+// centre cell is the first anchor of every cell of its super-tile; the
+// cells it leaves (bracket too wide or across a bin) go to the centre of
+// their patch of 5 x 5 cells (3 x 3 patches per super-tile). A site is
+// left out at an anchor when a lower bound on its distance there exceeds
+// the nearest measured one by more than twice the largest t (it cannot be
+// nearest anywhere around the anchor); the lower bounds at a patch's
+// anchor are the exact distances at the super-tile's centre minus
+// pathBound, and the super-tile's candidates come from one geodesy.Index
+// query, as in Distances. A cell whose patch bracket still fails is
+// computed exactly: the smallest geodesic to the patch's measured sites
+// whose brackets reach the smallest upper end (the others are farther),
+// which is Index.Nearest's value bit for bit.
+func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
+	n := w * h
+	if f.ll == nil {
+		f.Distances(x0, y0, w, h, need, lo)
+		copy(hi[:n], lo[:n])
+		return
+	}
+	for i := range n {
+		lo[i], hi[i] = math.NaN(), math.NaN()
+	}
+	sc := scratchPool.Get().(*scratch)
+	defer scratchPool.Put(sc)
+	if cap(sc.pending) < n {
+		sc.pending = make([]bool, n)
+	}
+	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n]}
+	for sr := floorDiv(y0, SuperTile); sr*SuperTile < y0+h; sr++ {
+		for scol := floorDiv(x0, SuperTile); scol*SuperTile < x0+w; scol++ {
+			b.super(sr, scol)
+		}
+	}
+}
+
+func floorDiv(a, b int) int {
+	q := a / b
+	if a%b != 0 && (a < 0) != (b < 0) {
+		q--
+	}
+	return q
+}
+
+// bracketer is the state of one Bracket call.
+type bracketer struct {
+	f        *Field
+	ll       *lonLat
+	x0, y0   int
+	w, h     int
+	need     []uint64
+	bins     Binner
+	lo, hi   []float64
+	sc       *scratch
+	cands    []int
+	centreD  []float64 // exact distance from the super-tile's centre to each candidate
+	measured []anchorSite
+	pending  []bool // per block cell: left to the patches
+}
+
+// anchorSite is a site measured at a patch's anchor: its index, exact
+// distance, the sine and cosine of the azimuth from the anchor towards it,
+// and whether the Taylor bracket applies.
+type anchorSite struct {
+	k          int
+	f0, inv    float64 // distance and its inverse
+	sz, cz     float64
+	taylor     bool
+	slat, slon float64
+}
+
+// needed reports whether global cell (c, r) is in the block and needed.
+func (b *bracketer) needed(c, r int) (int, bool) {
+	x, y := c-b.x0, r-b.y0
+	if x < 0 || y < 0 || x >= b.w || y >= b.h {
+		return 0, false
+	}
+	i := y*b.w + x
+	return i, b.need == nil || b.need[i] != 0
+}
+
+// super brackets the cells of the block in super-tile (sr, scol).
+func (b *bracketer) super(sr, scol int) {
+	r0, c0 := sr*SuperTile, scol*SuperTile
+	any := false
+	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h) && !any; r++ {
+		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
+			if _, ok := b.needed(c, r); ok {
+				any = true
+				break
+			}
+		}
+	}
+	if !any {
+		return
+	}
+	ll, ix := b.ll, b.f.ix
+	cr, cc := r0+SuperTile/2, c0+SuperTile/2
+	clat, clon := ll.lat(cr), ll.lon(cc)
+	ok := math.Abs(clat) <= 90
+	rho := 0.0
+	for _, r := range [2]int{r0, r0 + SuperTile - 1} {
+		for _, c := range [2]int{c0, c0 + SuperTile - 1} {
+			la := ll.lat(r)
+			if !(math.Abs(la) <= 90) {
+				ok = false
+				continue
+			}
+			if ok {
+				rho = math.Max(rho, geodesy.Distance(clat, clon, la, ll.lon(c)))
+			}
+		}
+	}
+	if ok {
+		rho = rho*1.02 + 1 // as Distances' tiles
+		_, d1 := ix.Nearest(clat, clon, 0)
+		b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
+	}
+	if !ok {
+		b.exactRange(r0, c0, SuperTile, SuperTile)
+		return
+	}
+	// First try the super-tile's centre as the anchor of all its cells.
+	b.centreD = b.centreD[:0]
+	b.measured = b.measured[:0]
+	big := ll.stencil(SuperTile/2, sr)
+	best := math.Inf(1)
+	for _, k := range b.cands {
+		m := b.measure(k, clat, clon, big)
+		b.centreD = append(b.centreD, m.f0)
+		best = math.Min(best, m.f0)
+		b.measured = append(b.measured, m)
+	}
+	if big.ok {
+		keep := b.measured[:0]
+		for _, m := range b.measured {
+			if m.f0 <= best+2*big.tmax+1e-3 {
+				keep = append(keep, m)
+			}
+		}
+		b.measured = keep
+	}
+	sortSites(b.measured)
+	pend := false
+	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
+		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
+			i, ok := b.needed(c, r)
+			if !ok {
+				continue
+			}
+			b.pending[i] = true
+			if big.ok && b.cell(i, big, (r-cr+SuperTile/2)*SuperTile+c-cc+SuperTile/2) {
+				b.pending[i] = false
+				continue
+			}
+			pend = true
+		}
+	}
+	if !pend {
+		return
+	}
+	for pr := 0; pr < superP; pr++ {
+		for pc := 0; pc < superP; pc++ {
+			b.patch(sr*superP+pr, scol*superP+pc, clat, clon)
+		}
+	}
+}
+
+// measure returns site k measured exactly at anchor (alat, alon), with the
+// Hessian bounds for the anchor's stencil st.
+func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
+	slat, slon := b.f.ix.Site(k)
+	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
+	sz, cz := math.Sincos(az * math.Pi / 180)
+	m := anchorSite{k: k, f0: f0, inv: 1 / f0, sz: sz, cz: cz, slat: slat, slon: slon}
+	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
+		m.taylor = true
+	}
+	return m
+}
+
+// cell brackets block cell i from the measured sites, at stencil entry j
+// of st, and reports whether the bracket is narrow enough and inside one
+// bin (then lo[i] and hi[i] are set).
+func (b *bracketer) cell(i int, st *stencil, j int) bool {
+	t, su, cu := st.t[j], st.sa[j], st.ca[j]
+	lo, hi := math.Inf(1), math.Inf(1)
+	for q := range b.measured {
+		// Sites are in increasing order of f0: once f0 - t > hi, this site
+		// and the farther ones have both ends above hi, and change
+		// neither end of the minimum.
+		if b.measured[q].f0-t > hi {
+			break
+		}
+		l1, h1 := taylorBracket(&b.measured[q], t, su, cu)
+		if l1 < lo {
+			lo = l1
+		}
+		if h1 < hi {
+			hi = h1
+		}
+	}
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return true
+	}
+	return false
+}
+
+// exactRange computes the cells of the block in the global rectangle of
+// h x w cells at (r0, c0) exactly with a nearest-site query each.
+func (b *bracketer) exactRange(r0, c0, h, w int) {
+	for r := r0; r < r0+h; r++ {
+		for c := c0; c < c0+w; c++ {
+			i, ok := b.needed(c, r)
+			if !ok {
+				continue
+			}
+			lat, lon := b.ll.lat(r), b.ll.lon(c)
+			if !(math.Abs(lat) <= 90) {
+				continue
+			}
+			_, d := b.f.ix.Nearest(lat, lon, 0)
+			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// hLoFast and hHiFast bound the Hessian comparison bounds at distance r
+// (m), 0 < r <= b, without a tangent: with x = r/b <= 1,
+//
+//	cot(x)/b >= (1/x - x/3 - x^3/40)/b = 1/r - r/(3 b^2) - r^3/(40 b^4)
+//
+// (the series cot x = 1/x - x/3 - x^3/45 - 2x^5/945 - ... has its tail
+// below x^3 (1/45 + 2/945 + ...) < x^3/40 for x <= 1), and
+// (b/a^2) cot(b r/a^2) <= 1/r (y cot y <= 1).
+func hLoFast(r float64) float64 {
+	x := r * sqrtKmax
+	return (1/x - x/3 - x*x*x/40) * sqrtKmax
+}
+
+func hHiFast(r float64) float64 { return 1 / r }
+
+// kLo1 and kLo3 are the coefficients of hLoFast: 1/(3 b^2) and 1/(40 b^4).
+var (
+	kLo1 = sqrtKmax * sqrtKmax / 3
+	kLo3 = sqrtKmax * sqrtKmax * sqrtKmax * sqrtKmax / 40
+)
+
+// patch brackets the cells of the block in patch (pr, pc) that the
+// super-tile's anchor left pending; (clat, clon) is the super-tile's
+// centre.
+func (b *bracketer) patch(pr, pc int, clat, clon float64) {
+	r0, c0 := pr*patchP, pc*patchP
+	any := false
+	for r := r0; r < r0+patchP && !any; r++ {
+		for c := c0; c < c0+patchP; c++ {
+			if i, ok := b.needed(c, r); ok && b.pending[i] {
+				any = true
+				break
+			}
+		}
+	}
+	if !any {
+		return
+	}
+	ll := b.ll
+	st := ll.stencil(patchK, pr)
+	if !st.ok {
+		b.exactRange(r0, c0, patchP, patchP)
+		return
+	}
+	ra, ca := r0+patchK, c0+patchK
+	alat, alon := ll.lat(ra), ll.lon(ca)
+	// Lower bounds at the anchor from the super-tile's centre.
+	l := pathBound(clat, clon, alat, alon)
+	best, bi := math.Inf(1), -1
+	for j, d := range b.centreD {
+		if lb := d - l; lb < best {
+			best, bi = lb, j
+		}
+	}
+	b.measured = append(b.measured[:0], b.measure(b.cands[bi], alat, alon, st))
+	best = b.measured[0].f0
+	for j, d := range b.centreD {
+		if j == bi || d-l > best+2*st.tmax+1e-3 {
+			continue
+		}
+		b.measured = append(b.measured, b.measure(b.cands[j], alat, alon, st))
+		best = math.Min(best, b.measured[len(b.measured)-1].f0)
+	}
+	sortSites(b.measured)
+	for dr := -patchK; dr <= patchK; dr++ {
+		for dc := -patchK; dc <= patchK; dc++ {
+			i, ok := b.needed(ca+dc, ra+dr)
+			if !ok || !b.pending[i] {
+				continue
+			}
+			j := (dr+patchK)*patchP + dc + patchK
+			if b.cell(i, st, j) {
+				continue
+			}
+			// Measure the cell against the sites whose bracket reaches the
+			// smallest upper end: the others are farther.
+			t, su, cu := st.t[j], st.sa[j], st.ca[j]
+			minHi := math.Inf(1)
+			for q := range b.measured {
+				if _, h := taylorBracket(&b.measured[q], t, su, cu); h < minHi {
+					minHi = h
+				}
+			}
+			lat, lon := ll.lat(ra+dr), ll.lon(ca+dc)
+			d := math.Inf(1)
+			for q := range b.measured {
+				m := &b.measured[q]
+				if l, _ := taylorBracket(m, t, su, cu); l > minHi {
+					continue
+				}
+				d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))
+			}
+			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// sortSites sorts measured sites by distance at the anchor (insertion
+// sort: the lists hold a few sites).
+func sortSites(m []anchorSite) {
+	for i := 1; i < len(m); i++ {
+		for j := i; j > 0 && m[j].f0 < m[j-1].f0; j-- {
+			m[j], m[j-1] = m[j-1], m[j]
+		}
+	}
+}
+
+// sameBins reports whether the values -hi and -lo share their bins.
+func (b *bracketer) sameBins(lo, hi float64) bool {
+	b1, h1 := b.bins.Locate(0 - hi)
+	b2, h2 := b.bins.Locate(0 - lo)
+	return b1 == b2 && h1 == h2
+}
+
+// taylorBracket returns bounds on the distance from the cell at geodesic
+// length t and azimuth (sine su, cosine cu) from the anchor to site m (see
+// Bracket).
+func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
+	// The 1-Lipschitz bound, widened by the margin so that a bracket is
+	// never a single value (only cells measured with Distance are).
+	margin := 1e-3 + 1e-9*m.f0
+	lo, hi = math.Max(0, m.f0-t-margin), m.f0+t+margin
+	if !m.taylor {
+		return lo, hi
+	}
+	// f'(0): the gradient points away from the site, opposite the azimuth
+	// towards it.
+	c0 := -(cu*m.cz + su*m.sz)
+	if c0 > 1 {
+		c0 = 1
+	} else if c0 < -1 {
+		c0 = -1
+	}
+	// Hessian bounds for this cell's t without a division: with x = t/f0
+	// <= 1/2 (f0 > 2 t for a Taylor site), 1/(f0+t) >= (1-x)/f0 and
+	// 1/(f0-t) = 1/(f0 (1-x)) <= (1 + x + 2x^2)/f0; the other terms of
+	// hLoFast use the larger f0+t, which only lowers them further.
+	x := t * m.inv
+	h1 := (1-x)*m.inv - (m.f0+t)*kLo1 - (m.f0+t)*(m.f0+t)*(m.f0+t)*kLo3
+	h2 := (1 + x + 2*x*x) * m.inv
+	// f'' in [h1 q1, h2 q2], q the range of 1 - f'^2 with f' in [c0, p2];
+	// twice, the second time with p2 from the first upper bound on f''.
+	b := h2
+	var q1, q2 float64
+	for range 2 {
+		p2 := c0 + t*b
+		if p2 > 1 {
+			p2 = 1
+		}
+		q1 = 1 - c0*c0
+		if p2*p2 > c0*c0 {
+			q1 = 1 - p2*p2
+		}
+		if q1 < 0 {
+			q1 = 0
+		}
+		q2 = 1.0
+		if c0 > 0 {
+			q2 = 1 - c0*c0
+		} else if p2 < 0 {
+			q2 = 1 - p2*p2
+		}
+		b = h2 * q2
+	}
+	base := m.f0 + t*c0
+	half := t * t / 2
+	if l := base + h1*q1*half - margin; l > lo {
+		lo = l
+	}
+	if h := base + h2*q2*half + margin; h < hi {
+		hi = h
+	}
+	return lo, hi
+}
+
+// Bounds is Bracket on the null model's values, the form a scoring pass
+// takes: lo[i] <= value <= hi[i] with value = -distance (0 - d, as Fill),
+// both ends in the same bins of bins, lo[i] == hi[i] (the exact value of
+// Fill) where the cell was computed exactly, NaN where Fill gives NaN.
+func (f *Field) Bounds(x0, y0, w, h int, need []uint64, bins interface {
+	Locate(v float64) (bin, hist int)
+}, lo, hi []float64) {
+	f.Bracket(x0, y0, w, h, need, bins, lo, hi)
+	for i := range lo[:w*h] {
+		lo[i], hi[i] = 0-hi[i], 0-lo[i]
+	}
+}

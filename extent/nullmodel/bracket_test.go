@@ -1,0 +1,212 @@
+package nullmodel
+
+import (
+	"fmt"
+	"math"
+	"testing"
+
+	"areasweep/extent/geodesy"
+	"areasweep/metrics"
+)
+
+// testLayout returns a layout like a pass's for the null: the values at
+// every 37th cell (as presence values would be) and 4096 fine-histogram
+// bins over [-far, 0].
+func testLayout(t testing.TB, dist []float64, far float64) *metrics.Layout {
+	t.Helper()
+	var vals []float64
+	for i := 0; i < len(dist); i += 37 {
+		if !math.IsNaN(dist[i]) {
+			vals = append(vals, 0-dist[i])
+		}
+	}
+	l, err := metrics.NewLayout(vals, -far, 0, 4096)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return l
+}
+
+// TestBracketContainsDistance checks Bracket against Distances on
+// latitude-longitude grids (mid latitudes with 1 km cells, a coarse grid
+// near the pole, one across the antimeridian, one reaching the south pole):
+// every bracket holds the exact distance, a degenerate bracket is the
+// exact distance bit for bit, both ends share their bins, the width is
+// within 2 BracketTol of the distance, and the brackets are the same for
+// several ways of cutting the grid into blocks and with a need mask.
+func TestBracketContainsDistance(t *testing.T) {
+	cases := []struct {
+		name             string
+		west, north, deg float64
+		w, h             int
+		sw, ss, se, sn   float64
+		sites            int
+	}{
+		{"europe-1km", -5, 55, 0.01, 400, 300, -5, 52, -1, 55, 40},
+		{"arctic-coarse", -60, 89.5, 0.5, 240, 60, -60, 70, 60, 89, 12},
+		{"antimeridian", 175, -30, 0.05, 200, 120, 176, -36, 184, -31, 25},
+		{"south-pole", -180, -80, 0.1, 180, 100, -180, -89, -100, -81, 8},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			lats, lons := clusteredSites(tc.sites, tc.sw, tc.ss, tc.se, tc.sn, 11)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			f := NewLonLat(ix, tc.west, tc.deg, tc.north, -tc.deg)
+			want := make([]float64, tc.w*tc.h)
+			New(ix, lonLatGrid(tc.west, tc.north, tc.deg)).Distances(0, 0, tc.w, tc.h, nil, want)
+			far := f.FarthestBound(tc.w, tc.h, 16)
+			layout := testLayout(t, want, far)
+			need := make([]uint64, tc.w*tc.h)
+			for i := range need {
+				if i%11 != 3 {
+					need[i] = 1
+				}
+			}
+			var ref []float64
+			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}} {
+				for _, masked := range []bool{false, true} {
+					lo, hi := make([]float64, tc.w*tc.h), make([]float64, tc.w*tc.h)
+					blo, bhi, nd := make([]float64, bs[0]*bs[1]), make([]float64, bs[0]*bs[1]), make([]uint64, bs[0]*bs[1])
+					for y0 := 0; y0 < tc.h; y0 += bs[1] {
+						for x0 := 0; x0 < tc.w; x0 += bs[0] {
+							w, h := min(bs[0], tc.w-x0), min(bs[1], tc.h-y0)
+							var n []uint64
+							if masked {
+								n = nd[:w*h]
+								for y := range h {
+									copy(n[y*w:(y+1)*w], need[(y0+y)*tc.w+x0:])
+								}
+							}
+							f.Bracket(x0, y0, w, h, n, layout, blo, bhi)
+							for y := range h {
+								copy(lo[(y0+y)*tc.w+x0:], blo[y*w:(y+1)*w])
+								copy(hi[(y0+y)*tc.w+x0:], bhi[y*w:(y+1)*w])
+							}
+						}
+					}
+					exact, bad := 0, 0
+					for i, d := range want {
+						if masked && need[i] == 0 {
+							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
+								t.Fatalf("cell %d not needed: bracket [%v, %v], want NaN", i, lo[i], hi[i])
+							}
+							continue
+						}
+						b1, h1 := layout.Locate(0 - hi[i])
+						b2, h2 := layout.Locate(0 - lo[i])
+						ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
+						if lo[i] == hi[i] {
+							ok = lo[i] == d
+							exact++
+						}
+						if !ok {
+							if bad < 5 {
+								t.Errorf("blocks %v masked %v cell %d: bracket [%.9f, %.9f], distance %.9f", bs, masked, i, lo[i], hi[i], d)
+							}
+							bad++
+						}
+					}
+					if bad > 0 {
+						t.Fatalf("blocks %v masked %v: %d bad brackets", bs, masked, bad)
+					}
+					if !masked {
+						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, len(want), 100*float64(exact)/float64(len(want)))
+						key := append(append([]float64{}, lo...), hi...)
+						if ref == nil {
+							ref = key
+						} else {
+							for i := range key {
+								if key[i] != ref[i] {
+									t.Fatalf("blocks %v: bracket of cell %d differs from the one-block cut", bs, i%len(lo))
+								}
+							}
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkFieldBracket measures the bounded path of the distance field
+// (what a pass computes per block) on the same grids as BenchmarkDistances,
+// in blocks of 240 x 240 cells: ns per cell, and the share of cells
+// computed exactly.
+func BenchmarkFieldBracket(b *testing.B) {
+	for _, sites := range []int{100, 1000} {
+		for _, side := range []int{1024, 2048} {
+			lats, lons := clusteredSites(sites, 0, 40, 0.01*float64(side), 40+0.01*float64(side), 5)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				b.Fatal(err)
+			}
+			north := 40 + 0.01*float64(side)
+			f := NewLonLat(ix, 0, 0.01, north, -0.01)
+			far := f.FarthestBound(side, side, 64)
+			// presence-like layout values: distances at the sites' cells
+			var vals []float64
+			for i := range lats {
+				_, d := ix.Nearest(north-(math.Floor((north-lats[i])/0.01)+0.5)*0.01, (math.Floor(lons[i]/0.01)+0.5)*0.01, 0)
+				vals = append(vals, -d)
+			}
+			layout, err := metrics.NewLayout(vals, -far, 0, 4096)
+			if err != nil {
+				b.Fatal(err)
+			}
+			lo, hi := make([]float64, 240*240), make([]float64, 240*240)
+			b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
+				b.ReportAllocs()
+				exact := 0
+				c0 := cpuNanos(b)
+				for b.Loop() {
+					exact = 0
+					for y0 := 0; y0 < side; y0 += 240 {
+						for x0 := 0; x0 < side; x0 += 240 {
+							w, h := min(240, side-x0), min(240, side-y0)
+							f.Bracket(x0, y0, w, h, nil, layout, lo, hi)
+							for i := range w * h {
+								if lo[i] == hi[i] {
+									exact++
+								}
+							}
+						}
+					}
+				}
+				b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(side*side), "cpu-ns/cell")
+				b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(side*side), "ns/cell")
+				b.ReportMetric(float64(exact)/float64(side*side), "exact-share")
+			})
+		}
+	}
+}
+
+// TestHessianBounds checks the cheap forms of the Hessian comparison
+// bounds against the bounds themselves (cot from math.Tan) from 1 m to
+// 6000 km: hLoFast below cot(r/b)/b, hHiFast above (b/a^2) cot(b r/a^2),
+// and the division-free forms of taylorBracket beyond them; to 1e-12
+// relative (our tolerance for the rounding of both sides, far inside the
+// bracket's margin).
+func TestHessianBounds(t *testing.T) {
+	const eps = 1e-12
+	for r := 1.0; r < 6e6; r *= 1.01 {
+		lo := sqrtKmax / math.Tan(sqrtKmax*r)
+		hi := sqrtKmin / math.Tan(sqrtKmin*r)
+		if !(hLoFast(r) <= lo*(1+eps) && lo <= hi*(1+eps) && hi <= hHiFast(r)*(1+eps)) {
+			t.Fatalf("r = %v m: hLoFast %v, lower bound %v, upper bound %v, hHiFast %v", r, hLoFast(r), lo, hi, hHiFast(r))
+		}
+		for _, x := range []float64{0, 0.1, 0.3, 0.5} {
+			f0, step := r, x*r
+			if f0+step >= 6e6 {
+				continue
+			}
+			h1 := (1-x)/f0 - (f0+step)*kLo1 - (f0+step)*(f0+step)*(f0+step)*kLo3
+			h2 := (1 + x + 2*x*x) / f0
+			if h1 > hLoFast(f0+step)*(1+eps) || h2*(1+eps) < hHiFast(f0-step) {
+				t.Fatalf("f0 = %v m, t = %v m: division-free bounds %v, %v against %v, %v", f0, step, h1, h2, hLoFast(f0+step), hHiFast(f0-step))
+			}
+		}
+	}
+}
