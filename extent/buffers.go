@@ -42,7 +42,7 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 		if d == 0 {
 			continue
 		}
-		k, err := b.add(Member{ID: "region_" + kmID(d), Kind: string(vocab.KindRegionBuffer), Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
+		k, err := b.add(Member{ID: "region_" + kmID(d), Kind: vocab.KindRegionBuffer, Params: fmt.Sprintf("d_km=%g", d), DistanceKm: d, Chain: chainRegion})
 		if err != nil {
 			return err
 		}
@@ -157,7 +157,7 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 		if d <= 0 {
 			return fmt.Errorf("extent: point buffer distance %g km must be positive", d)
 		}
-		k, err := b.add(Member{ID: "points_" + kmID(d), Kind: string(vocab.KindPointBuffer), Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
+		k, err := b.add(Member{ID: "points_" + kmID(d), Kind: vocab.KindPointBuffer, Params: fmt.Sprintf("d_km=%g; around=%s", d, which), DistanceKm: d, Chain: chainPoints})
 		if err != nil {
 			return err
 		}

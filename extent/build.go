@@ -58,7 +58,7 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		return nil, err
 	}
 	f.Base = base
-	baseK, err := b.add(Member{ID: vocab.BaseID, Kind: string(vocab.KindBase), Params: "file=" + baseName(spec.Region)})
+	baseK, err := b.add(Member{ID: vocab.BaseID, Kind: vocab.KindBase, Params: "file=" + baseName(spec.Region)})
 	if err != nil {
 		return nil, err
 	}
@@ -93,13 +93,13 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		if err != nil {
 			return nil, err
 		}
-		k, err := b.add(Member{ID: "user_" + x.Name, Kind: string(vocab.KindUser), Params: "file=" + baseName(x.Path)})
+		k, err := b.add(Member{ID: "user_" + x.Name, Kind: vocab.KindUser, Params: "file=" + baseName(x.Path)})
 		if err != nil {
 			return nil, err
 		}
 		b.fillRuns(k, s.Grid)
 	}
-	wholeK, err := b.add(Member{ID: vocab.WholeRasterID, Kind: string(vocab.KindWholeRaster), Params: "all valid cells"})
+	wholeK, err := b.add(Member{ID: vocab.WholeRasterID, Kind: vocab.KindWholeRaster, Params: "all valid cells"})
 	if err != nil {
 		return nil, err
 	}

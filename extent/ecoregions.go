@@ -96,7 +96,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		if v.clip {
 			chain = chainEcoregions + "_clipped"
 		}
-		k, err := b.add(Member{ID: v.id, Kind: string(vocab.KindEcoregions), Params: v.params, Chain: chain})
+		k, err := b.add(Member{ID: v.id, Kind: vocab.KindEcoregions, Params: v.params, Chain: chain})
 		if err != nil {
 			return err
 		}

@@ -60,7 +60,7 @@ type Spec struct {
 // Member is one extent of the family.
 type Member struct {
 	ID     string
-	Kind   string // a vocab.Kind
+	Kind   vocab.Kind
 	Params string
 	// Chain names the nested chain the member belongs to, if any; members of
 	// a chain are listed in Family.Chains from smallest to largest.

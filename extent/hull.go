@@ -201,7 +201,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		if d > 0 {
 			id, params = "hull_"+kmID(d), fmt.Sprintf("convex hull of training points; d_km=%g", d)
 		}
-		k, err := b.add(Member{ID: id, Kind: string(vocab.KindHull), Params: params, DistanceKm: d, Chain: chainHull})
+		k, err := b.add(Member{ID: id, Kind: vocab.KindHull, Params: params, DistanceKm: d, Chain: chainHull})
 		if err != nil {
 			return err
 		}

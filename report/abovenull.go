@@ -6,9 +6,22 @@ import (
 	"strings"
 )
 
-// PairedKindNull is the Paired.Kind of a model minus a null on one extent
-// (Model minus OtherModel, the null, on the same test points).
-const PairedKindNull = "null"
+// PairKind says what a Paired record compares; its values are written to
+// results.json.
+type PairKind string
+
+// The paired kinds.
+const (
+	// PairedKindExtent is one model on an extent minus the same model on
+	// the base extent (Extent minus OtherExtent).
+	PairedKindExtent PairKind = "extent"
+	// PairedKindModel is one model minus another on the same extent
+	// (Model minus OtherModel).
+	PairedKindModel PairKind = "model"
+	// PairedKindNull is a model minus a null on one extent (Model minus
+	// OtherModel, the null, on the same test points).
+	PairedKindNull PairKind = "null"
+)
 
 // Readings of a model-minus-null interval (AboveNull, NullGap).
 const (

@@ -12,6 +12,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/plot/vg"
+
+	"areasweep/extent/vocab"
 )
 
 // effect is one hand-made paired AUC difference from the base extent.
@@ -288,7 +290,7 @@ func TestSummaryFromAnalysis(t *testing.T) {
 	}
 	ok := map[string]bool{}
 	for _, e := range r.Extents {
-		ok[e.ID] = e.Status == ExtentOK
+		ok[e.ID] = e.Status == vocab.StatusOK
 	}
 	for _, row := range s.Rows {
 		lo, hi := math.Inf(1), math.Inf(-1)

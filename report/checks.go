@@ -123,7 +123,7 @@ func (a *analysis) independence() Independence {
 		}
 		latSum += p.Lat
 		latN++
-		if p.Role != string(vocab.RoleTest) {
+		if p.Role != vocab.RoleTest {
 			continue
 		}
 		d = append(d, p.NearestTrainKm)
@@ -172,7 +172,7 @@ func (a *analysis) independence() Independence {
 func (a *analysis) omitted() []OmittedPoints {
 	nTest := 0
 	for _, p := range a.r.Points {
-		if p.Role == string(vocab.RoleTest) && p.Status == vocab.PointScored {
+		if p.Role == vocab.RoleTest && p.Status == vocab.PointScored {
 			nTest++
 		}
 	}

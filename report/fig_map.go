@@ -163,7 +163,7 @@ func mapPoints(r *Results, model string) mapMarks {
 		}
 		x, y := pointXY(r.Grid, pt)
 		xy := plotter.XY{X: x, Y: y}
-		switch vocab.Role(pt.Role) {
+		switch pt.Role {
 		case vocab.RoleTrain:
 			tr = append(tr, xy)
 		case vocab.RoleTest:

@@ -363,7 +363,7 @@ func extentsSection(r *Results) extentsView {
 		if e.DuplicateOf != "" {
 			status += " of " + e.DuplicateOf
 		}
-		rows = append(rows, []cell{tc(e.ID), tc(e.Kind), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
+		rows = append(rows, []cell{tc(e.ID), tc(string(e.Kind)), tc(e.Params), tc(e.Chain), cell{text: groupThousands(e.Cells), num: float64(e.Cells), isN: true, cls: "n"},
 			areaCell(e.AreaKm2), nc(e.ShareOfRaster, 3), ic(e.TrainPoints), ic(e.TestPoints), tc(status)})
 	}
 	return extentsView{

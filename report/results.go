@@ -25,7 +25,7 @@ import (
 //     sensitivity analysis; extents carry the spatial sorting bias;
 //     settings.distance_null;
 //
-// and adds model above null: paired records of kind "null" (every model
+// and adds model above null: paired records of kind PairedKindNull (every model
 // minus every null per extent) and sensitivity.above_null.
 const SchemaVersion = 3
 
@@ -165,7 +165,7 @@ type Model struct {
 // Point is one occurrence record after reading, thinning and sampling.
 type Point struct {
 	ID     int               `json:"id"`   // physical line number in the occurrence file (the header is line 1)
-	Role   string            `json:"role"` // vocab.RoleTrain or vocab.RoleTest
+	Role   vocab.Role        `json:"role"` // vocab.RoleTrain or vocab.RoleTest
 	Lon    float64           `json:"lon"`
 	Lat    float64           `json:"lat"`
 	Row    int               `json:"row"`
@@ -187,14 +187,14 @@ type PointCounts struct {
 
 // Extent is one member of the extent family.
 type Extent struct {
-	ID            string  `json:"id"`
-	Kind          string  `json:"kind"` // a vocab.Kind
-	Params        string  `json:"params"`
-	Cells         int64   `json:"cells"`
-	AreaKm2       float64 `json:"area_km2"`
-	TrainPoints   int     `json:"train_points"`
-	TestPoints    int     `json:"test_points"`
-	ShareOfRaster float64 `json:"share_of_raster"`
+	ID            string     `json:"id"`
+	Kind          vocab.Kind `json:"kind"`
+	Params        string     `json:"params"`
+	Cells         int64      `json:"cells"`
+	AreaKm2       float64    `json:"area_km2"`
+	TrainPoints   int        `json:"train_points"`
+	TestPoints    int        `json:"test_points"`
+	ShareOfRaster float64    `json:"share_of_raster"`
 	// Status is vocab.StatusOK, StatusEmpty or StatusDuplicate;
 	// DuplicateOf names the earlier member with the same cells.
 	Status      vocab.Status `json:"status"`
@@ -390,10 +390,10 @@ type Preview struct {
 }
 
 // Paired is one paired difference A - B on the test points both sides
-// share: two extents of one model (Kind "extent": Extent minus
-// OtherExtent, the base extent), two models on one extent (Kind "model":
-// Model minus OtherModel) or a model and a null on one extent (Kind
-// PairedKindNull: Model minus the null OtherModel).
+// share: two extents of one model (Kind PairedKindExtent: Extent minus
+// OtherExtent, the base extent), two models on one extent (Kind
+// PairedKindModel: Model minus OtherModel) or a model and a null on one
+// extent (Kind PairedKindNull: Model minus the null OtherModel).
 //
 // Method "placements": AUC differences from per-point placements, SE =
 // sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a normal 95% interval.
@@ -402,12 +402,12 @@ type Preview struct {
 // resampled differences and the interval their 2.5 and 97.5 percentiles.
 type Paired struct {
 	// Metric is a MetricInfo key ("auc", "partial_roc_e0.05", ...).
-	Metric      string `json:"metric"`
-	Kind        string `json:"kind"`
-	Model       string `json:"model"`
-	Extent      string `json:"extent"`
-	OtherModel  string `json:"other_model"`
-	OtherExtent string `json:"other_extent"`
+	Metric      string   `json:"metric"`
+	Kind        PairKind `json:"kind"`
+	Model       string   `json:"model"`
+	Extent      string   `json:"extent"`
+	OtherModel  string   `json:"other_model"`
+	OtherExtent string   `json:"other_extent"`
 	// CommonPoints is the number of test points on both sides.
 	CommonPoints int    `json:"common_points"`
 	Method       string `json:"method"`

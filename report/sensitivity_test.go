@@ -595,7 +595,7 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 			}
 			for i := range r.Paired {
 				p := &r.Paired[i]
-				if p.Metric == "partial_roc_e0.05" && p.Kind == "extent" && p.Model == "good" {
+				if p.Metric == "partial_roc_e0.05" && p.Kind == PairedKindExtent && p.Model == "good" {
 					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
 				}
 			}

@@ -30,11 +30,11 @@ type teachCell struct {
 }
 
 type teachExtent struct {
-	ID      string  `json:"id"`
-	Kind    string  `json:"kind"`
-	Params  string  `json:"params"`
-	AreaKm2 float64 `json:"area_km2"`
-	Area    string  `json:"area"`
+	ID      string     `json:"id"`
+	Kind    vocab.Kind `json:"kind"`
+	Params  string     `json:"params"`
+	AreaKm2 float64    `json:"area_km2"`
+	Area    string     `json:"area"`
 }
 
 type teachPayload struct {

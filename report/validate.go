@@ -110,7 +110,7 @@ func Validate(r *Results) error {
 	}
 	for i, p := range r.Points {
 		at := fmt.Sprintf("points[%d] (line %d)", i, p.ID)
-		if p.Role != string(vocab.RoleTrain) && p.Role != string(vocab.RoleTest) {
+		if p.Role != vocab.RoleTrain && p.Role != vocab.RoleTest {
 			v.fail(at+".role", "%q is not train or test", p.Role)
 		}
 		switch p.Status {

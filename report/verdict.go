@@ -8,7 +8,7 @@ import (
 
 // pairedFor returns the paired record of metric between (model, ext) and
 // (other, otherExt), or nil.
-func (a *analysis) pairedFor(metric, kind, model, ext, other, otherExt string) *Paired {
+func (a *analysis) pairedFor(metric string, kind PairKind, model, ext, other, otherExt string) *Paired {
 	for i := range a.r.Paired {
 		p := &a.r.Paired[i]
 		if p.Metric == metric && p.Kind == kind && p.Model == model && p.Extent == ext && p.OtherModel == other && p.OtherExtent == otherExt {
@@ -49,7 +49,7 @@ func position(lo, hi, tol float64) string {
 
 // difference fills one ExtentDifference from a paired record (or exactly,
 // for the predicted area, which no test point moves).
-func (a *analysis) difference(m MetricInfo, kind, model, ext, other, otherExt string) ExtentDifference {
+func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, otherExt string) ExtentDifference {
 	d := ExtentDifference{Extent: ext}
 	sc := a.score(model, ext)
 	if sc != nil {
@@ -102,7 +102,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		if e.ID == a.base || a.score(model, e.ID) == nil {
 			continue
 		}
-		d := a.difference(m, "extent", model, e.ID, model, a.base)
+		d := a.difference(m, PairedKindExtent, model, e.ID, model, a.base)
 		mv.Diffs = append(mv.Diffs, d)
 		if !d.Defined {
 			mv.Undefined = append(mv.Undefined, e.ID)
@@ -235,7 +235,7 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
 					continue
 				}
-				d := a.difference(m, "model", ma, e.ID, mb, e.ID)
+				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
 				if !d.Defined {
 					continue

@@ -62,7 +62,7 @@ func TestModelAboveNullOfItsCopy(t *testing.T) {
 		t.Errorf("null records per model: %v", got)
 	}
 	for _, p := range res.Paired {
-		if p.Kind == "model" && (p.Model == report.DistanceNullName || p.OtherModel == report.DistanceNullName) {
+		if p.Kind == report.PairedKindModel && (p.Model == report.DistanceNullName || p.OtherModel == report.DistanceNullName) {
 			t.Errorf("the null is ranked as a model: %+v", p)
 		}
 	}

@@ -13,6 +13,7 @@ import (
 
 	"github.com/airbusgeo/godal"
 
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
@@ -235,7 +236,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 	// Scored test points' values.
 	var test []float64
 	for _, p := range res.Points {
-		if p.Role == "test" && p.Status == report.PointScored {
+		if p.Role == vocab.RoleTest && p.Status == vocab.PointScored {
 			test = append(test, s.vals[p.Row*s.w+p.Col])
 		}
 	}
@@ -264,7 +265,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		if names[k] != e.ID {
 			t.Fatalf("band %d is %q, extent %q", k, names[k], e.ID)
 		}
-		if e.Status != "ok" {
+		if e.Status != vocab.StatusOK {
 			continue
 		}
 		vals, w, inside := bgOf(bands[k])
@@ -280,7 +281,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		}
 		var pres []float64
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == report.PointScored && inside(p.Row, p.Col) {
+			if p.Role == vocab.RoleTest && p.Status == vocab.PointScored && inside(p.Row, p.Col) {
 				pres = append(pres, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -298,7 +299,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		// same on every extent; omission and area fraction by brute force.
 		mtp := math.Inf(1)
 		for _, p := range res.Points {
-			if p.Role == "train" && p.Status == report.PointScored {
+			if p.Role == vocab.RoleTrain && p.Status == vocab.PointScored {
 				mtp = math.Min(mtp, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -360,7 +361,7 @@ func TestRunAgainstBruteForce(t *testing.T) {
 		_, _, insideOuter := bgOf(outer)
 		var pres []float64
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == report.PointScored && insideOuter(p.Row, p.Col) {
+			if p.Role == vocab.RoleTest && p.Status == vocab.PointScored && insideOuter(p.Row, p.Col) {
 				pres = append(pres, s.vals[p.Row*s.w+p.Col])
 			}
 		}
@@ -617,7 +618,7 @@ func checkGeoPackage(t *testing.T, path string, res *report.Results, cellDeg2 fl
 	}
 	want := map[string]report.Extent{}
 	for _, e := range res.Extents {
-		if e.Status == "ok" {
+		if e.Status == vocab.StatusOK {
 			want[e.ID] = e
 		}
 	}
@@ -636,7 +637,7 @@ func checkGeoPackage(t *testing.T, path string, res *report.Results, cellDeg2 fl
 			t.Errorf("unexpected feature %q", id)
 			continue
 		}
-		if fl["kind"].String() != e.Kind || fl["cells"].Int() != e.Cells || math.Abs(fl["area_km2"].Float()-e.AreaKm2) > 1e-6*e.AreaKm2 {
+		if fl["kind"].String() != string(e.Kind) || fl["cells"].Int() != e.Cells || math.Abs(fl["area_km2"].Float()-e.AreaKm2) > 1e-6*e.AreaKm2 {
 			t.Errorf("%s: attributes kind %s cells %d area %.3f; want %s %d %.3f", id, fl["kind"].String(), fl["cells"].Int(), fl["area_km2"].Float(), e.Kind, e.Cells, e.AreaKm2)
 		}
 		if a := f.Geometry().Area(); math.Abs(a-float64(e.Cells)*cellDeg2) > 1e-9 {
@@ -830,7 +831,7 @@ func TestProjectedEqualAreaGrid(t *testing.T) {
 	}
 	compared := 0
 	for k, e := range res.Extents {
-		if names[k] != e.ID || e.Status != "ok" {
+		if names[k] != e.ID || e.Status != vocab.StatusOK {
 			continue
 		}
 		if math.Abs(e.AreaKm2-100*float64(e.Cells)) > 1e-6 {
@@ -844,7 +845,7 @@ func TestProjectedEqualAreaGrid(t *testing.T) {
 			}
 		}
 		for _, p := range res.Points {
-			if p.Role == "test" && p.Status == report.PointScored && bands[k][p.Row*w+p.Col] == 1 {
+			if p.Role == vocab.RoleTest && p.Status == vocab.PointScored && bands[k][p.Row*w+p.Col] == 1 {
 				pres = append(pres, vals[p.Row*w+p.Col])
 			}
 		}

@@ -13,6 +13,7 @@ import (
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
@@ -46,7 +47,7 @@ func runWithNullValues(t *testing.T, s *smallStudy, out string) (res *report.Res
 	}
 	res = loadResults(t, out)
 	for _, p := range res.Points {
-		if p.Status == report.PointScored && p.Role == "train" {
+		if p.Status == vocab.PointScored && p.Role == vocab.RoleTrain {
 			lats, lons = append(lats, p.Lat), append(lons, p.Lon)
 		}
 	}
@@ -160,7 +161,7 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	names, bands := readBands(t, filepath.Join(out, "extents.tif"))
 	checked := 0
 	for k, e := range res.Extents {
-		if e.Status != "ok" || names[k] != e.ID {
+		if e.Status != vocab.StatusOK || names[k] != e.ID {
 			continue
 		}
 		sb := e.SortingBias
@@ -169,7 +170,7 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 		}
 		var test []float64
 		for _, p := range res.Points {
-			if p.Status == report.PointScored && p.Role == "test" && bands[k][p.Row*g.Width+p.Col] == 1 {
+			if p.Status == vocab.PointScored && p.Role == vocab.RoleTest && bands[k][p.Row*g.Width+p.Col] == 1 {
 				d := math.Inf(1)
 				for j := range lats {
 					d = math.Min(d, geodesy.Distance(p.Lat, p.Lon, lats[j], lons[j]))

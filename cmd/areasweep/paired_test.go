@@ -5,6 +5,7 @@ import (
 	"path/filepath"
 	"testing"
 
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
@@ -30,7 +31,7 @@ func TestPairedAgainstRawCells(t *testing.T) {
 	}
 	cellOf := map[int]int{}
 	for _, p := range res.Points {
-		if p.Role == "test" && p.Status == report.PointScored {
+		if p.Role == vocab.RoleTest && p.Status == vocab.PointScored {
 			cellOf[p.ID] = p.Row*s.w + p.Col
 		}
 	}
@@ -89,7 +90,7 @@ func TestPairedAgainstRawCells(t *testing.T) {
 			continue
 		}
 		switch {
-		case p.Kind == "extent" && p.Model == "m":
+		case p.Kind == report.PairedKindExtent && p.Model == "m":
 			a, b := placements[p.Extent], placements[p.OtherExtent]
 			var d []float64
 			for pid, va := range a {
@@ -117,7 +118,7 @@ func TestPairedAgainstRawCells(t *testing.T) {
 				t.Errorf("%s - %s: diff %.12f SE %.12f, raw cells %.12f %.12f", p.Extent, p.OtherExtent, p.Diff, p.SE, m, sd)
 			}
 			pairs++
-		case p.Kind == "model" && p.Model == "m" && p.OtherModel == "sq":
+		case p.Kind == report.PairedKindModel && p.Model == "m" && p.OtherModel == "sq":
 			if p.Diff != 0 || p.SE != 0 || p.Defined != (p.CommonPoints >= 2) {
 				t.Errorf("m - sq on %s: %+v, want exactly 0 with SE 0", p.Extent, p)
 			}

@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 
 	"github.com/airbusgeo/godal"
 )
@@ -289,7 +290,7 @@ func testCells(s *synthetic) ([]int, error) {
 	sc.Scan()
 	for sc.Scan() {
 		p := strings.Split(sc.Text(), ",")
-		if len(p) != 3 || p[2] != "test" {
+		if len(p) != 3 || p[2] != string(vocab.RoleTest) {
 			continue
 		}
 		lon, _ := strconv.ParseFloat(p[0], 64)

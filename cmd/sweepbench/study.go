@@ -10,6 +10,8 @@ import (
 	"runtime"
 	"sync"
 
+	"areasweep/extent/vocab"
+
 	"github.com/airbusgeo/godal"
 )
 
@@ -162,9 +164,9 @@ func (s *synthetic) writePoints(path string, nTrain, nTest int, seed uint64) err
 		if v == noData || rng.Float64() > float64(v)*float64(v) {
 			continue
 		}
-		role := "train"
+		role := vocab.RoleTrain
 		if n >= nTrain {
-			role = "test"
+			role = vocab.RoleTest
 		}
 		fmt.Fprintf(w, "%.6f,%.6f,%s\n", lon, lat, role)
 		n++

@@ -11,17 +11,8 @@ import (
 	"os"
 	"strconv"
 	"strings"
-)
 
-// Role says what an occurrence record is used for.
-type Role string
-
-// The two roles an occurrence record can have.
-const (
-	// RoleTrain marks a record used to calibrate (train) the model.
-	RoleTrain Role = "train"
-	// RoleTest marks a record held out to evaluate the model.
-	RoleTest Role = "test"
+	"areasweep/extent/vocab"
 )
 
 // Record is one occurrence read from the table.
@@ -32,8 +23,9 @@ type Record struct {
 	// X and Y are the coordinates as given: longitude and latitude in
 	// degrees, or easting and northing when the table has a projected CRS.
 	X, Y float64
-	// Role is RoleTrain or RoleTest.
-	Role Role
+	// Role is vocab.RoleTrain (a record used to calibrate the model) or
+	// vocab.RoleTest (a record held out to evaluate it).
+	Role vocab.Role
 }
 
 // Sentinel errors of the occurrence reader. They are wrapped inside a
@@ -292,7 +284,7 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 	}
 	var nTrain, nTest int
 	for _, r := range recs {
-		if r.Role == RoleTrain {
+		if r.Role == vocab.RoleTrain {
 			nTrain++
 		} else {
 			nTest++
@@ -437,12 +429,12 @@ func allBlank(rec []string) bool {
 	return true
 }
 
-func parseRole(s string) (Role, bool) {
+func parseRole(s string) (vocab.Role, bool) {
 	switch strings.ToLower(s) {
 	case "train", "training":
-		return RoleTrain, true
+		return vocab.RoleTrain, true
 	case "test", "testing":
-		return RoleTest, true
+		return vocab.RoleTest, true
 	}
 	return "", false
 }

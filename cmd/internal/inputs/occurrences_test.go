@@ -9,6 +9,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // All expected values in this file are by construction: each input table is
@@ -25,7 +27,7 @@ type okCase struct {
 
 // twoRecs is the expected result of a table whose records are (1.5, 2.5,
 // train) on line 2 and (-3, 4, test) on line 3 (by construction).
-var twoRecs = []Record{{Line: 2, X: 1.5, Y: 2.5, Role: RoleTrain}, {Line: 3, X: -3, Y: 4, Role: RoleTest}}
+var twoRecs = []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 3, X: -3, Y: 4, Role: vocab.RoleTest}}
 
 func okCases() []okCase {
 	var cs []okCase
@@ -56,20 +58,20 @@ func okCases() []okCase {
 		{name: "quoted cells", in: "\"lon\",\"lat\",\"role\"\n\"1.5\",\"2.5\",\"train\"\n\"-3\",\"4\",\"test\"\n", geographic: true, want: twoRecs},
 		{name: "comma delimiter quoted cell with comma", in: "lon,lat,role,note\n1.5,2.5,train,\"a, b\"\n-3,4,test,c\n", geographic: true, want: twoRecs},
 		{name: "role spellings", in: "lon,lat,role\n1,1,Train\n2,2,TRAINING\n3,3,test\n4,4,Testing\n5,5, training \n", geographic: true,
-			want: []Record{{2, 1, 1, RoleTrain}, {3, 2, 2, RoleTrain}, {4, 3, 3, RoleTest}, {5, 4, 4, RoleTest}, {6, 5, 5, RoleTrain}}},
+			want: []Record{{2, 1, 1, vocab.RoleTrain}, {3, 2, 2, vocab.RoleTrain}, {4, 3, 3, vocab.RoleTest}, {5, 4, 4, vocab.RoleTest}, {6, 5, 5, vocab.RoleTrain}}},
 		{name: "blank lines keep physical line numbers", in: "\n\nlon,lat,role\n\n1.5,2.5,train\n   \n,,\n-3,4,test\n\n", geographic: true,
-			want: []Record{{Line: 5, X: 1.5, Y: 2.5, Role: RoleTrain}, {Line: 8, X: -3, Y: 4, Role: RoleTest}}},
+			want: []Record{{Line: 5, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 8, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "semicolon rows of empty cells skipped", in: "lon;lat;role\n1,5;2,5;train\n;;\n-3;4;test\n;;\n", geographic: true,
-			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: RoleTrain}, {Line: 4, X: -3, Y: 4, Role: RoleTest}}},
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "multi-line quoted cell", in: "lon,lat,role,note\n1.5,2.5,train,\"two\nlines\"\n-3,4,test,x\n", geographic: true,
-			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: RoleTrain}, {Line: 4, X: -3, Y: 4, Role: RoleTest}}},
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "number forms", in: "lon,lat,role\n+1.5,.25e1,train\n-3.,4E0,test\n", geographic: true, want: twoRecs},
 		{name: "longitude 0..360 and range edges", in: "lon,lat,role\n360,90,train\n-180,-90,test\n", geographic: true,
-			want: []Record{{2, 360, 90, RoleTrain}, {3, -180, -90, RoleTest}}},
+			want: []Record{{2, 360, 90, vocab.RoleTrain}, {3, -180, -90, vocab.RoleTest}}},
 		{name: "projected values not range checked", in: "x,y,role\n500000,4649776.22,train\n-20000,9999999,test\n", geographic: false,
-			want: []Record{{2, 500000, 4649776.22, RoleTrain}, {3, -20000, 9999999, RoleTest}}},
+			want: []Record{{2, 500000, 4649776.22, vocab.RoleTrain}, {3, -20000, 9999999, vocab.RoleTest}}},
 		{name: "projected large latitude-like values not swapped", in: "lon,lat,role\n10,120,train\n20,-300,test\n", geographic: false,
-			want: []Record{{2, 10, 120, RoleTrain}, {3, 20, -300, RoleTest}}},
+			want: []Record{{2, 10, 120, vocab.RoleTrain}, {3, 20, -300, vocab.RoleTest}}},
 		{name: "row longer than header", in: "lon,lat,role\n1.5,2.5,train,extra,cells\n-3,4,test\n", geographic: true, want: twoRecs},
 	}...)
 	return cs
@@ -200,7 +202,7 @@ func TestSwapNeedsGeographic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []Record{{2, 45.2, -120.5, RoleTrain}, {3, -33.9, 151.2, RoleTest}}
+	want := []Record{{2, 45.2, -120.5, vocab.RoleTrain}, {3, -33.9, 151.2, vocab.RoleTest}}
 	if !reflect.DeepEqual(got, want) {
 		t.Fatalf("got %+v want %+v", got, want)
 	}
@@ -299,9 +301,9 @@ func FuzzParseOccurrences(f *testing.F) {
 				t.Fatalf("out-of-range record accepted %+v", r)
 			}
 			switch r.Role {
-			case RoleTrain:
+			case vocab.RoleTrain:
 				train = true
-			case RoleTest:
+			case vocab.RoleTest:
 				test = true
 			default:
 				t.Fatalf("bad role %q", r.Role)

@@ -10,6 +10,7 @@ import (
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -62,7 +63,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	v := NewVirtual(g, DistanceNull(g, ix))
 	var members []extent.Member
 	for _, e := range gd.Extents {
-		members = append(members, extent.Member{ID: e.Name, Status: extent.StatusOK})
+		members = append(members, extent.Member{ID: e.Name, Status: vocab.StatusOK})
 	}
 	fam := maskFamily(g, members, gd.Mask)
 	cells := make([]int, len(gd.Test))
@@ -183,7 +184,7 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 	}
 	var members []extent.Member
 	for _, e := range gd.Extents {
-		members = append(members, extent.Member{ID: e.Name, Status: extent.StatusOK})
+		members = append(members, extent.Member{ID: e.Name, Status: vocab.StatusOK})
 	}
 	fam := maskFamily(g, members, gd.Mask)
 	cells := make([]int, len(gd.Test))

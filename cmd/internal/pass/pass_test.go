@@ -9,6 +9,7 @@ import (
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -78,7 +79,7 @@ func openTestRaster(tb testing.TB, w, h int) (*extent.Grid, *Raster) {
 func fullFamily(g *extent.Grid, n int) *extent.Family {
 	var members []extent.Member
 	for k := 0; k < n; k++ {
-		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: extent.StatusOK})
+		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: vocab.StatusOK})
 	}
 	return extent.NewFamilyFromRuns(g, members, func(k, row int) []int32 { return []int32{0, int32(g.Width)} })
 }
@@ -145,7 +146,7 @@ func TestScoreWorkersAgree(t *testing.T) {
 func nestedFamily(g *extent.Grid, n int, chained bool) *extent.Family {
 	var members []extent.Member
 	for k := 0; k <= n; k++ {
-		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: extent.StatusOK})
+		members = append(members, extent.Member{ID: fmt.Sprint(k), Status: vocab.StatusOK})
 	}
 	cx, cy := float64(g.Width)/2, float64(g.Height)/2
 	f := extent.NewFamilyFromRuns(g, members, func(k, row int) []int32 {

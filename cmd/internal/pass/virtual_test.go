@@ -15,6 +15,7 @@ import (
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
@@ -40,7 +41,7 @@ func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.
 			}
 		}
 	}
-	fam := maskFamily(g, []extent.Member{{ID: "all", Status: extent.StatusOK}, {ID: "west", Status: extent.StatusOK}}, mask)
+	fam := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
 	return g, NewVirtual(g, f), f, fam
 }
 

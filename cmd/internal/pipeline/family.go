@@ -7,14 +7,15 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
 // buildFamily builds the extent family and fills Results.Extents.
 func (s *Study) buildFamily() error {
 	o := s.o
-	train, trainCells, _ := s.scoredPoints("train")
-	test, testCells, _ := s.scoredPoints("test")
+	train, trainCells, _ := s.scoredPoints(vocab.RoleTrain)
+	test, testCells, _ := s.scoredPoints(vocab.RoleTest)
 	spec := extent.Spec{
 		Region:             o.Region,
 		RegionBuffersKm:    o.RegionBuffers,
@@ -77,8 +78,8 @@ func (s *Study) buildFamily() error {
 // found (Sums.Valid), and records it in the results: from then on the
 // extents are final. Pass calls it after the first pass.
 func (s *Study) Clip(valid extent.Valid) error {
-	_, trainCells, _ := s.scoredPoints("train")
-	_, testCells, _ := s.scoredPoints("test")
+	_, trainCells, _ := s.scoredPoints(vocab.RoleTrain)
+	_, testCells, _ := s.scoredPoints(vocab.RoleTest)
 	s.valid = valid
 	s.fam.Clip(valid, trainCells, testCells)
 	for _, w := range s.fam.Warnings[s.nWarn:] {
@@ -99,7 +100,7 @@ func (s *Study) recordExtents() error {
 		s.res.Extents = append(s.res.Extents, report.Extent{
 			ID: m.ID, Kind: m.Kind, Params: m.Params, Cells: m.Cells, AreaKm2: m.AreaKm2,
 			TrainPoints: m.TrainPoints, TestPoints: m.TestPoints, ShareOfRaster: m.Share,
-			Status: report.ExtentStatus(m.Status), DuplicateOf: m.DuplicateOf, Chain: m.Chain,
+			Status: m.Status, DuplicateOf: m.DuplicateOf, Chain: m.Chain,
 		})
 		s.logf("extent %-28s %-14s %10d cells %14.1f km2  train %4d  test %4d  %s", m.ID, m.Kind, m.Cells, m.AreaKm2, m.TrainPoints, m.TestPoints, m.Status)
 	}

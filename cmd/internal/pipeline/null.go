@@ -10,6 +10,7 @@ import (
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
@@ -40,7 +41,7 @@ type distanceNull struct {
 // each extent's distances for its spatial sorting bias. Without scored
 // training points the pass is skipped (nil) with a warning.
 func (s *Study) planDistanceNull(i int) (*Plan, error) {
-	train, _, _ := s.scoredPoints("train")
+	train, _, _ := s.scoredPoints(vocab.RoleTrain)
 	if len(train) == 0 {
 		s.warn("no training point is scored, so the distance-only null cannot be computed")
 		return nil, nil
@@ -72,7 +73,7 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		t := dn.bg.Tally()
 		defer t.Done()
 		for k, mem := range fam.Members {
-			if mem.Status != extent.StatusOK {
+			if mem.Status != vocab.StatusOK {
 				continue
 			}
 			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
@@ -103,17 +104,17 @@ func (s *Study) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 	t0 := time.Now()
 	dist := make([]float64, len(s.points))
 	for j, p := range s.points {
-		if p.Status == report.PointScored && p.Role == "test" {
+		if p.Status == vocab.PointScored && p.Role == vocab.RoleTest {
 			_, dist[j] = ix.Nearest(s.lonlat[j].Lat, s.lonlat[j].Lon, 0)
 		}
 	}
 	for k, mem := range s.fam.Members {
-		if k >= len(s.res.Extents) || mem.Status != extent.StatusOK {
+		if k >= len(s.res.Extents) || mem.Status != vocab.StatusOK {
 			continue
 		}
 		var test []float64
 		for j, p := range s.points {
-			if p.Status == report.PointScored && p.Role == "test" && s.fam.Has(k, s.cell[j]) {
+			if p.Status == vocab.PointScored && p.Role == vocab.RoleTest && s.fam.Has(k, s.cell[j]) {
 				test = append(test, dist[j])
 			}
 		}

@@ -12,6 +12,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
 )
@@ -51,7 +52,7 @@ func scoresCSV(r *report.Results) []byte {
 			role = report.RoleNull
 		}
 		row := func(metric, e, rule string, v float64) {
-			w.Write([]string{sc.Model, sc.Extent, ex.Kind, ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v), role})
+			w.Write([]string{sc.Model, sc.Extent, string(ex.Kind), ftoa(ex.AreaKm2), n, metric, e, rule, ftoa(v), role})
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
@@ -118,7 +119,7 @@ func scoresCSV(r *report.Results) []byte {
 			suffix string
 			v      float64
 		}{{"", p.Diff}, {"_se", p.SE}, {"_ci_low", p.Low}, {"_ci_high", p.High}} {
-			w.Write([]string{p.Model, p.Extent, ex.Kind, ftoa(ex.AreaKm2), strconv.Itoa(p.CommonPoints), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
+			w.Write([]string{p.Model, p.Extent, string(ex.Kind), ftoa(ex.AreaKm2), strconv.Itoa(p.CommonPoints), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
 		}
 	}
 	w.Flush()
@@ -131,7 +132,7 @@ func extentsCSV(ex []report.Extent) []byte {
 	w := csv.NewWriter(&buf)
 	w.Write([]string{"id", "kind", "params", "status", "duplicate_of", "chain", "cells", "area_km2", "share_of_raster", "train_points", "test_points"})
 	for _, e := range ex {
-		w.Write([]string{e.ID, e.Kind, e.Params, string(e.Status), e.DuplicateOf, e.Chain, strconv.FormatInt(e.Cells, 10), ftoa(e.AreaKm2),
+		w.Write([]string{e.ID, string(e.Kind), e.Params, string(e.Status), e.DuplicateOf, e.Chain, strconv.FormatInt(e.Cells, 10), ftoa(e.AreaKm2),
 			ftoa(e.ShareOfRaster), strconv.Itoa(e.TrainPoints), strconv.Itoa(e.TestPoints)})
 	}
 	w.Flush()
@@ -163,7 +164,7 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 	}
 	var feats []extent.Feature
 	for _, p := range r.Points {
-		if p.Role != "test" || p.Status != report.PointScored {
+		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
 			continue
 		}
 		b, err := wkb.Marshal(orb.Point{p.Lon, p.Lat})

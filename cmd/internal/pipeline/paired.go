@@ -5,6 +5,7 @@ import (
 	"runtime"
 	"sync"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
 )
@@ -16,7 +17,7 @@ func (s *Study) globalTest() []int {
 	n := 0
 	for j, p := range s.points {
 		g[j] = -1
-		if p.Status == report.PointScored && p.Role == "test" {
+		if p.Status == vocab.PointScored && p.Role == vocab.RoleTest {
 			g[j] = n
 			n++
 		}
@@ -91,7 +92,10 @@ func (s *Study) paired() error {
 		}
 	}
 	base := report.BaseExtent(okIDs)
-	type job struct{ kind, ma, ea, mb, eb string }
+	type job struct {
+		kind           report.PairKind
+		ma, ea, mb, eb string
+	}
 	var jobs []job
 	for _, m := range all {
 		if scored(m.Name, base) == nil {
@@ -99,7 +103,7 @@ func (s *Study) paired() error {
 		}
 		for _, id := range okIDs {
 			if id != base && scored(m.Name, id) != nil {
-				jobs = append(jobs, job{"extent", m.Name, id, m.Name, base})
+				jobs = append(jobs, job{report.PairedKindExtent, m.Name, id, m.Name, base})
 			}
 		}
 	}
@@ -107,7 +111,7 @@ func (s *Study) paired() error {
 		for i, a := range models {
 			for _, b := range models[i+1:] {
 				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
-					jobs = append(jobs, job{"model", a.Name, id, b.Name, id})
+					jobs = append(jobs, job{report.PairedKindModel, a.Name, id, b.Name, id})
 				}
 			}
 		}
@@ -157,7 +161,7 @@ func (s *Study) paired() error {
 
 // comparePair compares model ma on extent ea with model mb on extent eb on
 // their common test points (pairedRecords).
-func (s *Study) comparePair(kind, ma, ea, mb, eb string) ([]report.Paired, error) {
+func (s *Study) comparePair(kind report.PairKind, ma, ea, mb, eb string) ([]report.Paired, error) {
 	a, b := s.evals[[2]string{ma, ea}], s.evals[[2]string{mb, eb}]
 	if a == nil || b == nil {
 		return nil, fmt.Errorf("paired %s: no evaluator for %s/%s or %s/%s", kind, ma, ea, mb, eb)
@@ -184,7 +188,7 @@ func (s *Study) thresholdKeys(model string) []string {
 // eb) and returns one report.Paired per score: both AUCs from the
 // placements, the partial ROC ratio per E, the omission rate per threshold
 // (keys name them) and the Boyce index from the paired resamples d.
-func pairedRecords(kind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
+func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
 	cmp, err := metrics.Compare(a, b, d)
 	if err != nil {
 		return nil, err

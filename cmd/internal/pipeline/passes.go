@@ -10,6 +10,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
 )
@@ -176,7 +177,7 @@ func (s *Study) layout(p *Plan, lo, hi float64) error {
 	var layoutVals []float64
 	var missing []string
 	for k, pt := range s.points {
-		if pt.Status != report.PointScored {
+		if pt.Status != vocab.PointScored {
 			continue
 		}
 		if !valid[k] {

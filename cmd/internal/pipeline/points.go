@@ -17,6 +17,7 @@ import (
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/place"
+	"areasweep/extent/vocab"
 	"areasweep/report"
 )
 
@@ -159,14 +160,14 @@ func (s *Study) readPoints() error {
 	s.lonlat = make([]extent.LonLat, n)
 	s.cell = make([]int, n)
 	for i, r := range recs {
-		p := report.Point{ID: r.Line, Role: string(r.Role), Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: report.PointScored}
+		p := report.Point{ID: r.Line, Role: r.Role, Lon: round6(lons[i]), Lat: round6(lats[i]), Row: -1, Col: -1, Status: vocab.PointScored}
 		s.lonlat[i] = extent.LonLat{Lon: lons[i], Lat: lats[i]}
 		s.cell[i] = -1
 		if col, row, ok := g.CellOf(xs[i], ys[i]); ok {
 			p.Row, p.Col = row, col
 			s.cell[i] = row*g.Width + col
 		} else {
-			p.Status = report.PointOutsideRaster
+			p.Status = vocab.PointOutsideRaster
 		}
 		s.points[i] = p
 	}
@@ -194,7 +195,7 @@ func (s *Study) readPoints() error {
 	// and one per cell and role unless --no-thin (extent/place).
 	rr := place.Records{Cell: s.cell, Valid: pointValid, Role: make([]int, len(s.points))}
 	for i, p := range s.points {
-		if p.Role != "train" {
+		if p.Role != vocab.RoleTrain {
 			rr.Role[i] = place.Test
 		}
 	}
@@ -209,12 +210,12 @@ func (s *Study) readPoints() error {
 		outside = append(outside, where(i))
 	}
 	for _, i := range pl.NoData {
-		s.points[i].Status = report.PointNoData
+		s.points[i].Status = vocab.PointNoData
 		nodata = append(nodata, where(i))
 	}
 	for _, d := range pl.Thinned {
 		p := &s.points[d.Record]
-		p.Status = report.PointThinned
+		p.Status = vocab.PointThinned
 		pairs = append(pairs, fmt.Sprintf("line %d shares a cell with line %d (%s)", p.ID, s.points[d.First].ID, p.Role))
 	}
 	if len(outside) > 0 {
@@ -244,17 +245,17 @@ func (s *Study) countPoints() {
 	c := &s.res.PointCounts
 	for _, p := range s.points {
 		switch p.Status {
-		case report.PointScored:
-			if p.Role == "train" {
+		case vocab.PointScored:
+			if p.Role == vocab.RoleTrain {
 				c.Train++
 			} else {
 				c.Test++
 			}
-		case report.PointThinned:
+		case vocab.PointThinned:
 			c.Thinned++
-		case report.PointOutsideRaster:
+		case vocab.PointOutsideRaster:
 			c.OutsideRaster++
-		case report.PointNoData:
+		case vocab.PointNoData:
 			c.NoData++
 		}
 	}
@@ -348,11 +349,11 @@ func fileSHA256(path string) (string, error) {
 }
 
 // scoredPoints returns lon/lat and cells of the scored points of role.
-func (s *Study) scoredPoints(role string) ([]extent.LonLat, []int, []int) {
+func (s *Study) scoredPoints(role vocab.Role) ([]extent.LonLat, []int, []int) {
 	var ll []extent.LonLat
 	var cells, idx []int
 	for i, p := range s.points {
-		if p.Status == report.PointScored && p.Role == role {
+		if p.Status == vocab.PointScored && p.Role == role {
 			ll = append(ll, s.lonlat[i])
 			cells = append(cells, s.cell[i])
 			idx = append(idx, i)

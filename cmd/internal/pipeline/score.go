@@ -8,8 +8,8 @@ import (
 	"time"
 
 	"areasweep/cmd/internal/pass"
-	"areasweep/extent"
 	"areasweep/extent/geodesy"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
 )
@@ -26,10 +26,10 @@ type modelPoints struct {
 func (s *Study) split(vals []float64, valid []bool) modelPoints {
 	var mp modelPoints
 	for j, p := range s.points {
-		if p.Status != report.PointScored || !valid[j] {
+		if p.Status != vocab.PointScored || !valid[j] {
 			continue
 		}
-		if p.Role == "train" {
+		if p.Role == vocab.RoleTrain {
 			mp.train = append(mp.train, vals[j])
 		} else {
 			mp.test = append(mp.test, vals[j])
@@ -97,13 +97,13 @@ type pointsIn struct {
 }
 
 // inside reports whether point j is scored, of role, with data, in member k.
-func (q pointsIn) inside(j, k int, role string) bool {
+func (q pointsIn) inside(j, k int, role vocab.Role) bool {
 	p := q.s.points[j]
-	return p.Status == report.PointScored && p.Role == role && q.valid[j] && q.s.fam.Has(k, q.s.cell[j])
+	return p.Status == vocab.PointScored && p.Role == role && q.valid[j] && q.s.fam.Has(k, q.s.cell[j])
 }
 
 // values returns the values of the points of role inside member k.
-func (q pointsIn) values(k int, role string) []float64 {
+func (q pointsIn) values(k int, role vocab.Role) []float64 {
 	var out []float64
 	for j := range q.s.points {
 		if q.inside(j, k, role) {
@@ -117,7 +117,7 @@ func (q pointsIn) values(k int, role string) []float64 {
 // inside member k.
 func (q pointsIn) testIDs(k int) (global, ids []int) {
 	for j, p := range q.s.points {
-		if q.inside(j, k, "test") {
+		if q.inside(j, k, vocab.RoleTest) {
 			global, ids = append(global, q.global[j]), append(ids, p.ID)
 		}
 	}
@@ -132,16 +132,16 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	mem := s.fam.Members[k]
 	sc := report.Score{Model: model, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 	switch mem.Status {
-	case extent.StatusEmpty:
+	case vocab.StatusEmpty:
 		sc.NotScored = "extent covers no valid cell"
 		s.res.Scores = append(s.res.Scores, sc)
 		return nil
-	case extent.StatusDuplicate:
+	case vocab.StatusDuplicate:
 		sc.NotScored = "same cells as " + mem.DuplicateOf
 		s.res.Scores = append(s.res.Scores, sc)
 		return nil
 	}
-	train, test := in.values(k, "train"), in.values(k, "test")
+	train, test := in.values(k, vocab.RoleTrain), in.values(k, vocab.RoleTest)
 	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
 	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
 	out, err := metrics.Score(acc, train, test, set)
@@ -179,13 +179,13 @@ func firstRatio(sc report.Score) string {
 // consecutive members A inside B, the ring R = B minus A is scored against
 // the test presences of B; ShareOfChange is each ring's share of the
 // chain's change of AUC from its innermost to its outermost member.
-func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, string) []float64) error {
+func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, vocab.Role) []float64) error {
 	for _, name := range s.fam.ChainNames() {
 		chain := s.fam.Chain(name)
 		var rs []report.Ring
 		for i := 1; i < len(chain); i++ {
 			a, b := chain[i-1], chain[i]
-			r, err := metrics.DecomposeRing(accs[a], accs[b], presence(b, "test"))
+			r, err := metrics.DecomposeRing(accs[a], accs[b], presence(b, vocab.RoleTest))
 			if err != nil {
 				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, err)
 			}
@@ -238,7 +238,7 @@ func (s *Study) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 // analyse adds distances between test and training points and the
 // sensitivity analysis.
 func (s *Study) analyse() error {
-	train, _, _ := s.scoredPoints("train")
+	train, _, _ := s.scoredPoints(vocab.RoleTrain)
 	if len(train) > 0 {
 		lats := make([]float64, len(train))
 		lons := make([]float64, len(train))
@@ -251,7 +251,7 @@ func (s *Study) analyse() error {
 		}
 		for i := range s.points {
 			p := &s.points[i]
-			if p.Status == report.PointScored && p.Role == "test" {
+			if p.Status == vocab.PointScored && p.Role == vocab.RoleTest {
 				_, d := ix.Nearest(s.lonlat[i].Lat, s.lonlat[i].Lon, 0)
 				p.NearestTrainKm = math.Round(d) / 1000
 			}

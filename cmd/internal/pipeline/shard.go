@@ -13,6 +13,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/shardfile"
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report/outfile"
 )
@@ -212,8 +213,8 @@ func (s *Study) shardClip(found extent.Valid) {
 			v[c>>6] &^= 1 << (uint(c) & 63)
 		}
 	}
-	_, trainCells, _ := s.scoredPoints("train")
-	_, testCells, _ := s.scoredPoints("test")
+	_, trainCells, _ := s.scoredPoints(vocab.RoleTrain)
+	_, testCells, _ := s.scoredPoints(vocab.RoleTest)
 	s.valid = v
 	s.fam.Clip(v, trainCells, testCells)
 }

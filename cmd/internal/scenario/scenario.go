@@ -10,6 +10,7 @@ import (
 	"strconv"
 
 	"areasweep/extent"
+	"areasweep/extent/vocab"
 
 	"github.com/airbusgeo/godal"
 )
@@ -123,15 +124,15 @@ func occurrencesCSV(recs []record) []byte {
 	var b bytes.Buffer
 	b.WriteString("longitude,latitude,role\n")
 	for _, r := range recs {
-		role := "test"
+		role := vocab.RoleTest
 		if r.train {
-			role = "train"
+			role = vocab.RoleTrain
 		}
 		b.WriteString(strconv.FormatFloat(r.lon, 'f', 6, 64))
 		b.WriteByte(',')
 		b.WriteString(strconv.FormatFloat(r.lat, 'f', 6, 64))
 		b.WriteByte(',')
-		b.WriteString(role)
+		b.WriteString(string(role))
 		b.WriteByte('\n')
 	}
 	return b.Bytes()
