@@ -30,7 +30,7 @@ func build(t testing.TB, c testCase, fixed []float64, histBins int) (*Layout, *A
 	if !(lo < hi) {
 		lo, hi = lo-1, lo+1
 	}
-	l, err := NewLayout(vals, lo, hi, histBins)
+	l, err := NewLayout(vals, histBins)
 	if err != nil {
 		t.Fatal(err)
 	}

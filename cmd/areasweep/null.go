@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"math"
 	"sync"
 	"time"
 
@@ -12,10 +11,6 @@ import (
 	"areasweep/extent/nullmodel"
 	"areasweep/report"
 )
-
-// farthestStep is the tile side (cells) of the one-query-per-tile bound on
-// the null's largest distance, which sets the range of its fine histogram.
-const farthestStep = 64
 
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
@@ -48,7 +43,6 @@ func (s *session) scoreDistanceNull(i int) error {
 	}
 	g := s.grid
 	field := nullmodel.New(ix, pass.CellCentres(g))
-	far := field.FarthestBound(g.Width, g.Height, farthestStep)
 	var bg nullmodel.Background
 	fam := s.fam
 	// Each ok member's cells of the row, taken from its runs, go to its own
@@ -73,13 +67,8 @@ func (s *session) scoreDistanceNull(i int) error {
 			bg.Add(k, sc.d, sc.w)
 		}
 	}
-	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training
-	// points and the grid alone, so the same inputs give the same null
-	// Boyce index (the null has no file layout). An exact range would cost
-	// a second distance pass; a GeoTIFF copy of the null spans its exact
-	// range instead, so only its Boyce index may differ.
 	m := report.Model{Name: report.DistanceNullName, Role: report.RoleNull, NullKind: report.NullDistance}
-	if err := s.scoreSource(i, m, pass.NewVirtual(g, field), -math.Max(far, 1), 0, rows); err != nil {
+	if err := s.scoreSource(i, m, pass.NewVirtual(g, field), rows); err != nil {
 		return err
 	}
 	s.res.Settings.DistanceNull = true

@@ -48,20 +48,11 @@ func (s *session) scoreModel(i int, m namedPath) error {
 		return badInput(err)
 	}
 	defer r.Close()
-	// The fine histogram (Boyce) spans the exact value range, so that the
-	// same pixels give the same index whatever the file layout.
-	lo, hi, ok, err := r.ExactRange()
-	if err != nil {
-		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
-	}
-	if !ok {
-		return badInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
-	}
 	role := report.Model{Name: m.Name, Path: s.recordedPath(m.Path), Role: report.RoleModel}
 	if m.Null {
 		role.Role, role.NullKind = report.RoleNull, report.NullRaster
 	}
-	return s.scoreSource(i, role, r, lo, hi, nil)
+	return s.scoreSource(i, role, r, nil)
 }
 
 // source is a model the pass can score: a raster or a computed field.
@@ -72,10 +63,11 @@ type source interface {
 }
 
 // scoreSource scores model m (name, path and role filled) from src, the
-// i-th pass of the run: values at the points, the layout (fine histogram
-// over [lo, hi] widened to the point values), one pass, and every metric
-// on every extent. rows, when set, sees every row of the pass.
-func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64, rows func(int, int, []float64, []int64)) error {
+// i-th pass of the run: values at the points, the layout (no value range
+// needed: each extent's fine histogram follows its own cells), one pass,
+// and every metric on every extent. rows, when set, sees every row of the
+// pass.
+func (s *session) scoreSource(i int, m report.Model, src source, rows func(int, int, []float64, []int64)) error {
 	g, fam := s.grid, s.fam
 	vals, valid, err := src.Sample(g, s.cell)
 	if err != nil {
@@ -97,17 +89,8 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
 	}
 	layoutVals = append(layoutVals, s.o.Thresholds...)
-	for _, v := range layoutVals {
-		lo, hi = math.Min(lo, v), math.Max(hi, v)
-	}
-	if !(hi > lo) {
-		hi = lo + 1
-	}
-	layout, err := metrics.NewLayout(layoutVals, lo, hi, histBins)
+	layout, err := metrics.NewLayout(layoutVals, histBins)
 	if err != nil {
-		if !finiteRange(lo, hi) {
-			return badInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
-		}
 		return internal(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	var pv *pass.Preview
@@ -130,6 +113,9 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 			return internal(err)
 		}
 		return badInput(fmt.Errorf("model %s: %w", m.Name, err))
+	}
+	if !stats.AnyValid {
+		return badInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
 	}
 	how := "read once"
 	if m.NullKind == report.NullDistance {
@@ -245,10 +231,6 @@ func (s *session) scoreSource(i int, m report.Model, src source, lo, hi float64,
 	}
 	s.omissions(m.Name, mp)
 	return nil
-}
-
-func finiteRange(lo, hi float64) bool {
-	return !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && !math.IsNaN(lo) && !math.IsNaN(hi) && !math.IsInf(hi-lo, 0)
 }
 
 func firstRatio(sc report.Score) string {

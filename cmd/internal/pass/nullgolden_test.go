@@ -70,7 +70,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layout, err := metrics.NewLayout(vals, -3e6, 0, 4096)
+	layout, err := metrics.NewLayout(vals, 4096)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -169,7 +169,7 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		layout, err := metrics.NewLayout(vals, lo, hi, 4096)
+		layout, err := metrics.NewLayout(vals, 4096)
 		if err != nil {
 			t.Fatal(err)
 		}
