@@ -115,3 +115,18 @@ func TestExactRangeLayouts(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkExactRange measures the whole-raster range read (one goroutine)
+// on the 2000 x 2000 raster of BenchmarkScorePass: the read a model's
+// pass no longer needs before it.
+func BenchmarkExactRange(b *testing.B) {
+	_, r := openTestRaster(b, 2000, 2000)
+	defer r.Close()
+	b.ReportAllocs()
+	for i := 0; i < b.N; i++ {
+		if _, _, ok, err := r.ExactRange(); err != nil || !ok {
+			b.Fatal(ok, err)
+		}
+	}
+	b.ReportMetric(float64(2000*2000)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+}
