@@ -63,6 +63,9 @@ type boyceWindow struct{ lo, hi, mid, share float64 }
 func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 	mn, mx := a.min, a.max
 	span := mx - mn
+	if math.IsInf(span, 0) || math.IsNaN(span) {
+		return nil // a range wider than float64 holds: no window can be placed
+	}
 	w := width * span
 
 	// The bins that can hold a cell, each with its interval clipped to

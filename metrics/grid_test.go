@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/big"
 	"math/rand/v2"
+	"reflect"
 	"slices"
 	"testing"
 )
@@ -245,5 +246,29 @@ func BenchmarkGridWiden(b *testing.B) {
 		}
 		v := float64(i&(1<<20-1)) * 1e-6
 		a.AddLocated(l.Locate(v), v, 1)
+	}
+}
+
+// TestHugeRangeFinite: a background spanning the whole float64 range (a
+// width that overflows) still gives finite scores and an undefined Boyce
+// index, with no panic: the histogram's grid reaches it, the windows
+// cannot be formed.
+func TestHugeRangeFinite(t *testing.T) {
+	test := []float64{-1e300, 0.5, 1e300}
+	l, err := NewLayout(test, 4096)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := l.NewAccumulator()
+	for i, v := range []float64{-math.MaxFloat64, -1e300, -1, 0, 0.5, 2, 1e300, math.MaxFloat64} {
+		a.Add(v, int64(1+i))
+	}
+	sc, err := Score(a, nil, test, Settings{E: []float64{0.05}, Iterations: 10, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkFinite(t, reflect.ValueOf(sc), "Scores")
+	if sc.Boyce.Defined {
+		t.Errorf("Boyce %+v defined on an infinite-width range", sc.Boyce)
 	}
 }
