@@ -70,9 +70,10 @@ func runWithNullValues(t *testing.T, s *smallStudy, out string) (res *report.Res
 // every extent: value range, AUCs, the placements and their SE, DeLong's
 // full variance, the AUC's SD over the paired resamples (seeded by the run
 // alone), the full-sample partial ROC ratio, every threshold test, rings and
-// omission lists. Two things differ by design and are not compared: the
-// published half-size bootstrap (its stream is seeded by the model's name) and the Boyce index (its fine histogram spans the exact value range
-// for a raster, [-FarthestBound, 0] for the null).
+// omission lists, and the Boyce index with its curve (each extent's fine
+// histogram follows its own cells, whatever the source). One thing differs
+// by design and is not compared: the published half-size bootstrap (its
+// stream is seeded by the model's name).
 // It also checks the roles, that the sensitivity analysis leaves both nulls
 // out, and the sorting-bias ratios against a brute-force computation from
 // the raw cells (Distance to every training point, true cell areas).
@@ -118,8 +119,12 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 			for _, p := range sc.PartialROC {
 				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations)
 			}
+			boyce := "none"
+			if sc.Boyce != nil {
+				boyce = fmt.Sprintf("%+v", *sc.Boyce)
+			}
 			return fmt.Sprint(sc.Scored, sc.NotScored, sc.Cells, sc.AreaKm2, sc.TestPoints, sc.TrainPoints, sc.TestOutside, sc.TrainOutside,
-				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE, sc.AUCUnweightedSEDeLong, sc.AUCBootSD, sc.Placements, sc.PlacementsUnweighted, ratios, sc.Thresholds)
+				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE, sc.AUCUnweightedSEDeLong, sc.AUCBootSD, sc.Placements, sc.PlacementsUnweighted, ratios, sc.Thresholds, boyce)
 		}
 		if key(v) != key(c) {
 			t.Errorf("extent %s: virtual null\n %s\nGeoTIFF copy\n %s", id, key(v), key(c))

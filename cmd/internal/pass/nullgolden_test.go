@@ -70,7 +70,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layout, err := metrics.NewLayout(vals, -3e6, 0, 4096)
+	layout, err := metrics.NewLayout(vals, 4096)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -164,12 +164,12 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		cells[i] = p.Cell
 	}
 	set := metrics.Settings{Iterations: 1, Seed: 1}
-	evals := func(v *Virtual, lo, hi float64) ([]*metrics.Evaluator, []metrics.Scores) {
+	evals := func(v *Virtual) ([]*metrics.Evaluator, []metrics.Scores) {
 		vals, ok, err := v.Sample(g, cells)
 		if err != nil {
 			t.Fatal(err)
 		}
-		layout, err := metrics.NewLayout(vals, lo, hi, 4096)
+		layout, err := metrics.NewLayout(vals, 4096)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -199,8 +199,8 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		}
 		return evs, scs
 	}
-	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}), 0, 1)
-	null, _ := evals(NewVirtual(g, nullmodel.New(ix, CellCentres(g))), -3e6, 0)
+	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}))
+	null, _ := evals(NewVirtual(g, nullmodel.New(ix, CellCentres(g))))
 	d := metrics.Draws{N: len(cells), B: 20, Seed: 7}
 	for k, e := range gd.Extents {
 		if math.Abs(modelScores[k].AUC-e.ModelAUC) > 1e-9 {

@@ -113,7 +113,7 @@ func TestVirtualEqualsRaster(t *testing.T) {
 			t.Errorf("cell %d: virtual %v (%v), raster %v (%v), field %v", cells[i], vv[i], vok[i], rv[i], rok[i], all[cells[i]])
 		}
 	}
-	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
+	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), 256)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -164,7 +164,7 @@ func TestVirtualEqualsRaster(t *testing.T) {
 // valid cells (Family.Has) gives each accumulator's area.
 func TestRowsHook(t *testing.T) {
 	g, v, _, fam := nullSetup(t)
-	layout, err := metrics.NewLayout([]float64{-1e4}, -4e5, 0, 64)
+	layout, err := metrics.NewLayout([]float64{-1e4}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -222,7 +222,7 @@ func BenchmarkNullPass(b *testing.B) {
 		b.Fatal(err)
 	}
 	v := NewVirtual(g, nullmodel.New(ix, CellCentres(g)))
-	layout, err := metrics.NewLayout(lats, -3e6, 0, 4096)
+	layout, err := metrics.NewLayout(lats, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -326,7 +326,7 @@ func (panicField) Fill(x0, y0, w, h int, need []uint64, dst []float64) {
 // instead of killing the process or hanging the other workers.
 func TestWorkerPanicIsInternalError(t *testing.T) {
 	g, _, _, fam := nullSetup(t)
-	layout, err := metrics.NewLayout([]float64{3}, 0, 7, 64)
+	layout, err := metrics.NewLayout([]float64{3}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}
