@@ -18,6 +18,13 @@ type sum struct {
 // the exact minimum and maximum value, the number of cells, the total area
 // and the number of skipped (non-finite or negative-weight) cells.
 //
+// The fine histogram has Layout.HistBins bins of width 2^e on the dyadic
+// grid of the accumulator's own value range (see gridExp): at least
+// (HistBins-1)/2 bins span [Min, Max]. The grid is coarsened exactly when
+// a cell outside it arrives, so it depends only on the cells added, not on
+// their order or on how partial accumulators were merged, and no value
+// range is needed before the cells are seen.
+//
 // All sums are integers, so Merge is exact and the result does not depend on
 // the order in which cells or partial accumulators are combined. The caller
 // chooses the area unit (for example square metres rounded per cell) and
@@ -30,6 +37,14 @@ type Accumulator struct {
 	bins     []sum
 	hist     []sum
 	min, max float64 // +Inf / -Inf while empty
+	// The histogram's grid: hist[i] holds grid bin hbase+i of exponent he;
+	// hinv = 2^-he; hlo, hhi = hbase, hbase+len(hist) as float64, so that
+	// v is inside the window iff hlo <= gridX(v, hinv) < hhi (+Inf, -Inf
+	// while there is no grid).
+	he       int
+	hbase    int64
+	hinv     float64
+	hlo, hhi float64
 	cells    int64
 	area     int64
 	skipped  int64
@@ -39,13 +54,15 @@ type Accumulator struct {
 
 // NewAccumulator returns an empty accumulator on layout l.
 func (l *Layout) NewAccumulator() *Accumulator {
-	return &Accumulator{
+	a := &Accumulator{
 		layout: l,
 		bins:   make([]sum, l.Bins()),
 		hist:   make([]sum, l.hBins),
 		min:    math.Inf(1),
 		max:    math.Inf(-1),
 	}
+	a.clearGrid()
+	return a
 }
 
 // Layout returns the layout the accumulator was made on.
@@ -59,24 +76,28 @@ func (a *Accumulator) Add(v float64, w int64) {
 		a.skipped++
 		return
 	}
-	bin, hist := a.layout.Locate(v)
-	a.AddLocated(bin, hist, v, w)
+	a.AddLocated(a.layout.Locate(v), v, w)
 }
 
-// AddLocated adds one cell whose bins were found by Locate on the same
+// AddLocated adds one cell whose exact bin was found by Locate on the same
 // layout. It does no checks: v must be finite and w >= 0. It is the hot path
-// of the raster pass (Locate once per cell, then AddLocated into every extent
-// that holds the cell) and is small enough to be inlined.
-func (a *Accumulator) AddLocated(bin, hist int, v float64, w int64) {
-	b := &a.bins[bin]
-	b.area += w
-	b.n++
-	h := &a.hist[hist]
-	h.area += w
-	h.n++
+// of the raster pass: Locate once per cell, then AddLocated (or AddRow) into
+// every extent that holds the cell.
+func (a *Accumulator) AddLocated(bin int, v float64, w int64) {
 	if v == 0 {
 		v = 0 // -0 and +0 are one value: Min and Max report +0 whatever the order
 	}
+	b := &a.bins[bin]
+	b.area += w
+	b.n++
+	x := gridX(v, a.hinv)
+	if !(x >= a.hlo && x < a.hhi) {
+		a.widen(v)
+		x = gridX(v, a.hinv)
+	}
+	h := &a.hist[int(x-a.hlo)]
+	h.area += w
+	h.n++
 	if v < a.min {
 		a.min = v
 	}
@@ -87,10 +108,52 @@ func (a *Accumulator) AddLocated(bin, hist int, v float64, w int64) {
 	a.area += w
 }
 
+// AddRow adds the cells i of one row with bins[i] >= 0: exact bin bins[i]
+// (from Locate), value vals[i] (finite) and area weight weights[i] (>= 0),
+// as AddLocated does for each. vals and weights must be at least as long as
+// bins.
+func (a *Accumulator) AddRow(bins []int32, vals []float64, weights []int64) {
+	vals, weights = vals[:len(bins)], weights[:len(bins)]
+	// The body of AddLocated, with the totals and extremes kept in locals
+	// (written back before the grid is widened, which reads them).
+	mn, mx, cells, area := a.min, a.max, a.cells, a.area
+	for i, bin := range bins {
+		if bin < 0 {
+			continue
+		}
+		v, w := vals[i], weights[i]
+		if v == 0 {
+			v = 0
+		}
+		b := &a.bins[bin]
+		b.area += w
+		b.n++
+		x := gridX(v, a.hinv)
+		if !(x >= a.hlo && x < a.hhi) {
+			a.min, a.max, a.cells, a.area = mn, mx, cells, area
+			a.widen(v)
+			x = gridX(v, a.hinv)
+		}
+		h := &a.hist[int(x-a.hlo)]
+		h.area += w
+		h.n++
+		if v < mn {
+			mn = v
+		}
+		if v > mx {
+			mx = v
+		}
+		cells++
+		area += w
+	}
+	a.min, a.max, a.cells, a.area = mn, mx, cells, area
+}
+
 // Reset empties the accumulator, keeping its layout and memory.
 func (a *Accumulator) Reset() {
 	clear(a.bins)
 	clear(a.hist)
+	a.clearGrid()
 	a.min, a.max = math.Inf(1), math.Inf(-1)
 	a.cells, a.area, a.skipped = 0, 0, 0
 	a.bounded = false
@@ -117,9 +180,15 @@ func (a *Accumulator) Merge(b *Accumulator) error {
 		a.bins[i].area += b.bins[i].area
 		a.bins[i].n += b.bins[i].n
 	}
-	for i := range a.hist {
-		a.hist[i].area += b.hist[i].area
-		a.hist[i].n += b.hist[i].n
+	if b.cells > 0 {
+		if a.cells == 0 {
+			a.he, a.hbase, a.hinv, a.hlo, a.hhi = b.he, b.hbase, b.hinv, b.hlo, b.hhi
+			copy(a.hist, b.hist)
+		} else {
+			lo, hi := math.Min(a.min, b.min), math.Max(a.max, b.max)
+			a.regrid(max(a.he, b.he, a.layout.histExp(lo, hi)), lo, hi)
+			a.addHist(b, 1)
+		}
 	}
 	if b.cells > 0 {
 		a.bounded = a.bounded || b.bounded
@@ -148,17 +217,25 @@ func (a *Accumulator) Sub(b *Accumulator) (*Accumulator, error) {
 	if a.layout != b.layout {
 		return nil, errors.New("metrics: Sub: accumulators were made on different layouts")
 	}
-	r := a.layout.NewAccumulator()
+	r := a.Clone()
 	for i := range a.bins {
 		r.bins[i] = sum{a.bins[i].area - b.bins[i].area, a.bins[i].n - b.bins[i].n}
 		if r.bins[i].area < 0 || r.bins[i].n < 0 {
 			return nil, fmt.Errorf("metrics: Sub: exact bin %d of the inner accumulator exceeds the outer one (inner is not nested in outer)", i)
 		}
 	}
-	for i := range a.hist {
-		r.hist[i] = sum{a.hist[i].area - b.hist[i].area, a.hist[i].n - b.hist[i].n}
-		if r.hist[i].area < 0 || r.hist[i].n < 0 {
-			return nil, fmt.Errorf("metrics: Sub: histogram bin %d of the inner accumulator exceeds the outer one (inner is not nested in outer)", i)
+	if b.cells > 0 {
+		if a.cells == 0 || b.min < a.min || b.max > a.max {
+			return nil, errors.New("metrics: Sub: the inner accumulator's values reach outside the outer one's range (inner is not nested in outer)")
+		}
+		// The ring keeps the outer grid, coarsened if the inner one is
+		// coarser (possible only when a is itself a ring).
+		r.regrid(max(a.he, b.he), a.min, a.max)
+		r.addHist(b, -1)
+		for i := range r.hist {
+			if r.hist[i].area < 0 || r.hist[i].n < 0 {
+				return nil, fmt.Errorf("metrics: Sub: histogram bin %d of the inner accumulator exceeds the outer one (inner is not nested in outer)", i)
+			}
 		}
 	}
 	r.cells = a.cells - b.cells
@@ -167,18 +244,20 @@ func (a *Accumulator) Sub(b *Accumulator) (*Accumulator, error) {
 	if r.cells < 0 || r.area < 0 || r.skipped < 0 {
 		return nil, errors.New("metrics: Sub: inner accumulator has more cells, area or skipped cells than the outer one (inner is not nested in outer)")
 	}
+	r.bounded = false
 	if r.cells > 0 {
 		r.ringRange(a)
+	} else {
+		r.min, r.max = math.Inf(1), math.Inf(-1)
+		r.clearGrid()
 	}
 	return r, nil
 }
 
 // ringRange sets r.min and r.max for a ring cut out of outer.
 func (r *Accumulator) ringRange(outer *Accumulator) {
-	l := r.layout
-	d := l.d
+	d := r.layout.d
 	m := len(d)
-	slack := 1e-6 * l.histWidth()
 
 	lo, loExact := outer.min, false
 	if outer.min == outer.max && !outer.bounded {
@@ -196,15 +275,14 @@ func (r *Accumulator) ringRange(outer *Accumulator) {
 		}
 		break
 	}
+	// Histogram bins are exact intervals [lower edge, upper edge).
 	if !loExact {
 		for k := range r.hist {
-			if r.hist[k].n == 0 {
-				continue
+			if r.hist[k].n != 0 {
+				e, _ := r.histEdges(k)
+				lo = math.Max(lo, e)
+				break
 			}
-			if k > 0 {
-				lo = math.Max(lo, l.histEdge(k)-slack)
-			}
-			break
 		}
 	}
 
@@ -222,13 +300,11 @@ func (r *Accumulator) ringRange(outer *Accumulator) {
 	}
 	if !hiExact {
 		for k := len(r.hist) - 1; k >= 0; k-- {
-			if r.hist[k].n == 0 {
-				continue
+			if r.hist[k].n != 0 {
+				_, e := r.histEdges(k)
+				hi = math.Min(hi, math.Nextafter(e, math.Inf(-1)))
+				break
 			}
-			if k < len(r.hist)-1 {
-				hi = math.Min(hi, l.histEdge(k+1)+slack)
-			}
-			break
 		}
 	}
 	if hi < lo { // cannot happen for consistent input; keep the pair ordered

@@ -19,7 +19,7 @@ func TestAUCAgainst(t *testing.T) {
 		for i := range pres {
 			pres[i] = float64(rng.IntN(20)) / 4
 		}
-		lay, err := NewLayout(pres, 0, 5, 64)
+		lay, err := NewLayout(pres, 64)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -57,7 +57,7 @@ func TestAUCAgainst(t *testing.T) {
 
 	// Perfect separation with areas whose float conversions round: exactly 1.
 	pres := []float64{3, 3, 3}
-	lay, err := NewLayout(pres, 0, 5, 16)
+	lay, err := NewLayout(pres, 16)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -82,7 +82,7 @@ func TestAUCAgainst(t *testing.T) {
 // first; the accumulator stores +0).
 func TestSignedZeroOrder(t *testing.T) {
 	negZero := math.Copysign(0, -1)
-	lay, err := NewLayout([]float64{0}, -1, 1, 16)
+	lay, err := NewLayout([]float64{0}, 16)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -3,7 +3,6 @@ package metrics
 import (
 	"fmt"
 	"math"
-	"math/bits"
 	"math/rand/v2"
 	"testing"
 )
@@ -19,7 +18,7 @@ func benchLayout(b *testing.B, presences int) (*Layout, []float64) {
 	for i := range vals {
 		vals[i] = r.Float64()
 	}
-	l, err := NewLayout(vals, 0, 1, 1024)
+	l, err := NewLayout(vals, 1024)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -35,25 +34,37 @@ func benchLayout(b *testing.B, presences int) (*Layout, []float64) {
 
 // runPass runs the pass loop over cells for b.N cells and reports
 // updates/s (wall clock) and, where the OS tells thread CPU time,
-// updates/cpu-s (immune to time-slicing by other processes).
+// updates/cpu-s (immune to time-slicing by other processes). As the raster
+// pass does, it locates the cells of a 256-cell row once and then adds the
+// row to every extent (AddRow).
 func runPass(b *testing.B, l *Layout, cells []float64, extents int) {
+	const row = 256
 	accs := make([]*Accumulator, extents)
 	for i := range accs {
 		accs[i] = l.NewAccumulator()
 	}
-	mask := ^uint64(0) >> (64 - extents)
+	bins := make([]int32, row)
+	weights := make([]int64, row)
+	for i := range weights {
+		weights[i] = int64(1000 + i&7)
+	}
 	lockThread()
 	defer unlockThread()
 	b.ReportAllocs()
 	b.ResetTimer()
 	cpu0 := threadCPU()
-	for i := 0; i < b.N; i++ {
-		v := cells[i&(benchCells-1)]
-		w := int64(1000 + i&7)
-		bin, hist := l.Locate(v)
-		for m := mask; m != 0; m &= m - 1 {
-			accs[bits.TrailingZeros64(m)].AddLocated(bin, hist, v, w)
+	done := 0
+	for done < b.N {
+		off := done & (benchCells - 1)
+		n := min(row, b.N-done)
+		vals := cells[off : off+n]
+		for x, v := range vals {
+			bins[x] = int32(l.Locate(v))
 		}
+		for _, a := range accs {
+			a.AddRow(bins[:n], vals, weights)
+		}
+		done += n
 	}
 	cpu := threadCPU() - cpu0
 	b.StopTimer()
@@ -68,8 +79,7 @@ func runPass(b *testing.B, l *Layout, cells []float64, extents int) {
 }
 
 // BenchmarkPass measures the raster pass: per cell Locate once, then
-// AddLocated into every extent whose bit is set in the cell's uint64 mask
-// (all bits set). updates/s counts cell-extent updates.
+// AddRow into every extent. updates/s counts cell-extent updates.
 func BenchmarkPass(b *testing.B) {
 	for _, presences := range []int{100, 1000, 10000} {
 		for _, extents := range []int{1, 8, 64} {
@@ -110,8 +120,7 @@ func BenchmarkLocate(b *testing.B) {
 			b.ResetTimer()
 			var s int
 			for i := 0; i < b.N; i++ {
-				bin, hist := l.Locate(cells[i&(benchCells-1)])
-				s += bin + hist
+				s += l.Locate(cells[i&(benchCells-1)])
 			}
 			if s == 42 {
 				b.Log(s)
@@ -133,7 +142,7 @@ func BenchmarkScore(b *testing.B) {
 					test[i] = 1 - r.Float64()*r.Float64()
 				}
 				train := test[:n/2]
-				l, err := NewLayout(test, 0, 1, 1024)
+				l, err := NewLayout(test, 1024)
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -22,12 +22,14 @@ import (
 // correlation (average ranks for ties) between F_i and the window midpoints
 // over the used windows.
 //
-// Approximation: E_i is read from the fine histogram, taking each bin's area
-// as spread uniformly over the bin's interval clipped to [min, max] (end
-// bins extended to min and max when values were clamped into them), and
-// counting the overlapping part of partial bins (linear interpolation). A
-// bin whose clipped interval is a single point counts wholly when the point
-// lies in the window. P_i is exact.
+// Approximation: E_i is read from the extent's fine histogram (Accumulator:
+// equal bins of width 2^e on a dyadic grid, at least (HistBins-1)/2 of them
+// across [min, max], fixed by the extent's own cells), taking each bin's
+// area as spread uniformly over the bin's interval clipped to [min, max],
+// and counting the overlapping part of partial bins (linear interpolation).
+// A bin whose clipped interval is a single point counts wholly when the
+// point lies in the window. Only the bins that a window cuts contribute an
+// error, so E_i is exact when window ends fall on bin edges. P_i is exact.
 //
 // Index is 0 and Defined false, with Reason saying why, when fewer than 3
 // windows are used or F or the midpoints do not vary. Mid and Ratio list the
@@ -59,41 +61,39 @@ type boyceWindow struct{ lo, hi, mid, share float64 }
 // boyceWindows returns the windows with background area (share above
 // minBoyceShare), in order, for an extent's accumulator.
 func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
-	l := a.layout
 	mn, mx := a.min, a.max
 	span := mx - mn
+	if math.IsInf(span, 0) || math.IsNaN(span) {
+		return nil // a range wider than float64 holds: no window can be placed
+	}
 	w := width * span
 
-	// Effective interval of every histogram bin.
-	H := l.hBins
-	e0 := make([]float64, H)
-	e1 := make([]float64, H)
-	for k := 0; k < H; k++ {
-		lo, hi := l.histEdge(k), l.histEdge(k+1)
-		if k == 0 || lo < mn {
-			lo = mn
-		}
-		if k == H-1 || hi > mx {
-			hi = mx
-		}
+	// The bins that can hold a cell, each with its interval clipped to
+	// [min, max].
+	i0, i1 := a.occupied()
+	nb := i1 - i0 + 1
+	e0 := make([]float64, nb)
+	e1 := make([]float64, nb)
+	for k := range nb {
+		lo, hi := a.histEdges(i0 + k)
+		lo, hi = math.Max(lo, mn), math.Min(hi, mx)
 		if hi < lo {
 			hi = lo
 		}
 		e0[k], e1[k] = lo, hi
 	}
-	hw := l.histWidth()
 	total := float64(a.area)
 
 	areaIn := func(lo, hi float64) float64 {
 		var s float64
-		// Interior bins whose nominal interval can touch [lo, hi]; the
-		// end bins (possibly extended) are visited separately.
-		k0 := int(math.Max(1, math.Min(float64(H), math.Floor((lo-l.hMin)/hw)-1)))
-		k1 := int(math.Max(0, math.Min(float64(H-2), math.Floor((hi-l.hMin)/hw)+1)))
-		visit := func(k int) {
-			ar := a.hist[k].area
+		// Bins whose interval can touch [lo, hi] (one more on each side,
+		// for the clipped ends).
+		k0 := max(0, int(gridBin(lo, a.he)-a.hbase)-i0-1)
+		k1 := min(nb-1, int(gridBin(hi, a.he)-a.hbase)-i0+1)
+		for k := k0; k <= k1; k++ {
+			ar := a.hist[i0+k].area
 			if ar == 0 {
-				return
+				continue
 			}
 			if e1[k] > e0[k] {
 				ov := math.Min(e1[k], hi) - math.Max(e0[k], lo)
@@ -103,13 +103,6 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 			} else if e0[k] >= lo && e0[k] <= hi {
 				s += float64(ar)
 			}
-		}
-		visit(0)
-		for k := k0; k <= k1; k++ {
-			visit(k)
-		}
-		if H > 1 {
-			visit(H - 1)
 		}
 		return s
 	}

@@ -6,23 +6,25 @@
 // # Flow
 //
 // Per model, build a Layout from every presence value (training and test)
-// and every fixed threshold, plus the range and size of a fine histogram:
+// and every fixed threshold, and the size of each accumulator's fine
+// histogram:
 //
-//	l, err := metrics.NewLayout(values, modelMin, modelMax, 4096)
+//	l, err := metrics.NewLayout(values, 4096)
 //
-// Give the histogram the model's whole value range (values outside are
-// clamped into the end bins) and enough bins that a Boyce window on the
-// smallest extent spans many of them: the Boyce index is the only metric
-// that reads the histogram.
+// The layout needs no value range: each accumulator lays its fine histogram
+// on a dyadic grid fixed by its own cells (see Accumulator), so the layout
+// is known before the raster is read and is the same in every shard. Give
+// enough bins that a Boyce window spans many of them: the Boyce index is
+// the only metric that reads the histogram.
 //
 // Per extent, make an Accumulator. For each raster cell, locate the value
 // once and add it to every extent that holds the cell:
 //
-//	bin, hist := l.Locate(v)
+//	bin := l.Locate(v)
 //	for mask != 0 {
 //		k := bits.TrailingZeros64(mask)
 //		mask &= mask - 1
-//		accs[k].AddLocated(bin, hist, v, areaWeight)
+//		accs[k].AddLocated(bin, v, areaWeight)
 //	}
 //
 // Accumulators from different goroutines or tiles are combined with Merge;

@@ -27,7 +27,11 @@ import (
 // EncodingVersion is the version of the binary layout and accumulator
 // encodings. Change it whenever the byte layout or the meaning of a field
 // changes; decoders refuse any other version.
-const EncodingVersion uint16 = 1
+//
+// Version 2: the layout has no histogram range, and each accumulator's
+// fine histogram carries its own grid exponent and first bin.
+// Version 3: the layout carries its histogram floor (WithHistFloor).
+const EncodingVersion uint16 = 3
 
 const (
 	layoutMagic = "ASLY"
@@ -82,7 +86,7 @@ func trimPrefix(s string) string {
 
 // LayoutFingerprint is the SHA-256 of a layout's canonical encoding body:
 // two layouts have the same fingerprint exactly when they have the same
-// values, histogram range and histogram bin count.
+// values, histogram bin count and histogram floor.
 type LayoutFingerprint [sha256.Size]byte
 
 // String returns the fingerprint in hexadecimal.
@@ -92,18 +96,22 @@ func (f LayoutFingerprint) String() string { return fmt.Sprintf("%x", f[:]) }
 //
 //	m         uint64            number of distinct values
 //	values    m x float64 bits  ascending
-//	histMin   float64 bits
-//	histMax   float64 bits
 //	histBins  uint64
+//	floored   uint64            1 with a histogram floor, else 0
+//	floor     int64             the floor exponent (0 without a floor)
 func (l *Layout) layoutBody() []byte {
 	b := make([]byte, 0, 8+8*len(l.d)+24)
 	b = binary.LittleEndian.AppendUint64(b, uint64(len(l.d)))
 	for _, v := range l.d {
 		b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
 	}
-	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(l.hMin))
-	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(l.hMax))
 	b = binary.LittleEndian.AppendUint64(b, uint64(l.hBins))
+	var floored uint64
+	if l.floored {
+		floored = 1
+	}
+	b = binary.LittleEndian.AppendUint64(b, floored)
+	b = binary.LittleEndian.AppendUint64(b, uint64(int64(l.hFloor)))
 	return b
 }
 
@@ -190,11 +198,15 @@ func DecodeLayout(data []byte) (*Layout, error) {
 			return nil, &DecodeError{What: what, Err: ErrCorrupt, Detail: fmt.Sprintf("values %d and %d are not strictly ascending", i-1, i)}
 		}
 	}
-	hMin, hMax, hBins := r.f64(), r.f64(), r.u64()
-	if r.bad || hBins > maxHistBins {
+	hBins, floored, floor := r.u64(), r.u64(), r.i64()
+	if r.bad || hBins > maxHistBins || floored > 1 || (floored == 0 && floor != 0) || floor < minGridExp || floor > 1023 {
 		return nil, &DecodeError{What: what, Err: ErrCorrupt, Detail: "bad histogram fields"}
 	}
-	l, err := NewLayout(vals, hMin, hMax, int(hBins))
+	var opts []LayoutOption
+	if floored == 1 {
+		opts = append(opts, WithHistFloor(int(floor)))
+	}
+	l, err := NewLayout(vals, int(hBins), opts...)
 	if err != nil {
 		return nil, &DecodeError{What: what, Err: ErrCorrupt, Detail: trimPrefix(err.Error())}
 	}
@@ -211,6 +223,8 @@ func DecodeLayout(data []byte) (*Layout, error) {
 //	bins      uint64            2m+1
 //	hist      uint64            fine-histogram bins
 //	bins      (2m+1) x (area int64, n int64)
+//	exponent  int64             histogram grid exponent e (0 when empty)
+//	first     int64             grid bin of hist[0]: g_e(min) (0 when empty)
 //	hist      hist x (area int64, n int64)
 //	min, max  float64 bits      +Inf / -Inf while empty, -0 stored as +0
 //	cells, area, skipped  int64
@@ -220,7 +234,7 @@ func DecodeLayout(data []byte) (*Layout, error) {
 // Merge with others is exactly the merge of the originals.
 func EncodeAccumulator(a *Accumulator) []byte {
 	fp := a.layout.Fingerprint()
-	b := make([]byte, 0, sumLen+16+16*(len(a.bins)+len(a.hist))+48)
+	b := make([]byte, 0, sumLen+16+16*(len(a.bins)+len(a.hist))+64)
 	b = append(b, fp[:]...)
 	b = binary.LittleEndian.AppendUint64(b, uint64(len(a.bins)))
 	b = binary.LittleEndian.AppendUint64(b, uint64(len(a.hist)))
@@ -228,7 +242,21 @@ func EncodeAccumulator(a *Accumulator) []byte {
 		b = binary.LittleEndian.AppendUint64(b, uint64(s.area))
 		b = binary.LittleEndian.AppendUint64(b, uint64(s.n))
 	}
-	for _, s := range a.hist {
+	// The histogram is written from the bin of the minimum, so that where
+	// the window happened to sit does not change the bytes.
+	var e, first int64
+	i0 := 0
+	if a.cells > 0 {
+		i0, _ = a.occupied()
+		e, first = int64(a.he), a.hbase+int64(i0)
+	}
+	b = binary.LittleEndian.AppendUint64(b, uint64(e))
+	b = binary.LittleEndian.AppendUint64(b, uint64(first))
+	for i := range a.hist {
+		var s sum
+		if i0+i < len(a.hist) {
+			s = a.hist[i0+i]
+		}
 		b = binary.LittleEndian.AppendUint64(b, uint64(s.area))
 		b = binary.LittleEndian.AppendUint64(b, uint64(s.n))
 	}
@@ -273,7 +301,7 @@ func DecodeAccumulator(data []byte, l *Layout) (*Accumulator, error) {
 	if nb != uint64(l.Bins()) || nh != uint64(l.hBins) {
 		return nil, corrupt("%d exact and %d histogram bins, the layout has %d and %d", nb, nh, l.Bins(), l.hBins)
 	}
-	if uint64(len(r.b)) != 16*(nb+nh)+48 {
+	if uint64(len(r.b)) != 16*(nb+nh)+64 {
 		return nil, corrupt("body length does not match %d bins", nb+nh)
 	}
 	a := l.NewAccumulator()
@@ -298,6 +326,7 @@ func DecodeAccumulator(data []byte, l *Layout) (*Accumulator, error) {
 	if err := readSums(a.bins, &binArea, &binN); err != nil {
 		return nil, err
 	}
+	e, first := r.i64(), r.i64()
 	if err := readSums(a.hist, &histArea, &histN); err != nil {
 		return nil, err
 	}
@@ -317,6 +346,26 @@ func DecodeAccumulator(data []byte, l *Layout) (*Accumulator, error) {
 		return nil, corrupt("range [%v, %v] is impossible for %d cells", a.min, a.max, a.cells)
 	}
 	a.bounded = bounded == 1
+	if a.cells == 0 {
+		if e != 0 || first != 0 {
+			return nil, corrupt("an empty accumulator must have histogram exponent and first bin 0")
+		}
+		return a, nil
+	}
+	if e < int64(l.minExp(a.min, a.max)) || e > 1074 || gridBin(a.min, int(e)) != first {
+		return nil, corrupt("histogram grid (exponent %d, first bin %d) does not fit the range [%v, %v]", e, first, a.min, a.max)
+	}
+	last := int(gridBin(a.max, int(e)) - first)
+	if last >= len(a.hist) {
+		return nil, corrupt("range [%v, %v] spans more than %d histogram bins of exponent %d", a.min, a.max, len(a.hist), e)
+	}
+	for i := last + 1; i < len(a.hist); i++ {
+		if a.hist[i].n != 0 {
+			return nil, corrupt("histogram bin %d lies above the maximum %v", i, a.max)
+		}
+	}
+	a.he, a.hbase, a.hinv = int(e), first, gridInv(int(e))
+	a.hlo, a.hhi = float64(first), float64(first+int64(len(a.hist)))
 	return a, nil
 }
 

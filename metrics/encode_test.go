@@ -47,7 +47,7 @@ func randomLayout(t testing.TB, rng *rand.Rand) (*Layout, []float64) {
 	for i := range vals {
 		vals[i] = math.Round(10*rng.Float64()*100) / 100
 	}
-	l, err := NewLayout(vals, 0, 10, 16+rng.IntN(200))
+	l, err := NewLayout(vals, 16+rng.IntN(200))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -143,7 +143,7 @@ func TestEncodeRoundTripRing(t *testing.T) {
 // TestEncodeSignedZero: -0 and +0 cells in either order give the same
 // encoding (Add keeps whichever zero came first; the encoding stores +0).
 func TestEncodeSignedZero(t *testing.T) {
-	l, err := NewLayout([]float64{0.5}, -1, 1, 16)
+	l, err := NewLayout([]float64{0.5}, 16)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -173,7 +173,7 @@ func TestDecodeRefuses(t *testing.T) {
 		a.Add(vals[i], ws[i])
 	}
 	good := EncodeAccumulator(a)
-	other, err := NewLayout(append(lv, 99), 0, 10, l.HistBins())
+	other, err := NewLayout(append(lv, 99), l.HistBins())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -242,7 +242,7 @@ func TestDecodeRefuses(t *testing.T) {
 }
 
 func TestDecodeLayoutRefuses(t *testing.T) {
-	l, err := NewLayout([]float64{0.1, 0.2, 0.3}, 0, 1, 64)
+	l, err := NewLayout([]float64{0.1, 0.2, 0.3}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -252,7 +252,7 @@ func TestDecodeLayoutRefuses(t *testing.T) {
 	unsorted := bytes.Clone(good)
 	copy(unsorted[first:first+8], good[first+8:first+16])
 	copy(unsorted[first+8:first+16], good[first:first+8])
-	negZero, _ := NewLayout([]float64{0}, -1, 1, 16)
+	negZero, _ := NewLayout([]float64{0}, 16)
 	nz := EncodeLayout(negZero)
 	binary.LittleEndian.PutUint64(nz[first:], math.Float64bits(math.Copysign(0, -1)))
 	cases := map[string]struct {
@@ -279,7 +279,7 @@ func TestDecodeLayoutRefuses(t *testing.T) {
 // checks are reached). Whatever is accepted must encode back to the same
 // bytes and merge without error.
 func FuzzDecodeAccumulator(f *testing.F) {
-	l, err := NewLayout([]float64{0.25, 0.5, 0.75}, 0, 1, 16)
+	l, err := NewLayout([]float64{0.25, 0.5, 0.75}, 16)
 	if err != nil {
 		f.Fatal(err)
 	}

@@ -14,7 +14,7 @@ func Example() {
 	train := []float64{0.6, 0.8, 0.9}
 	test := []float64{0.5, 0.8, 0.9, 0.9}
 	values := append(append([]float64{}, train...), test...)
-	l, err := metrics.NewLayout(values, 0, 1, 16)
+	l, err := metrics.NewLayout(values, 16)
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -30,9 +30,9 @@ func Example() {
 		{0.7, 12, 0b11}, {0.8, 11, 0b11}, {0.9, 11, 0b11},
 	}
 	for _, c := range cells {
-		bin, hist := l.Locate(c.v)
+		bin := l.Locate(c.v)
 		for m := c.mask; m != 0; m &= m - 1 {
-			accs[bits.TrailingZeros64(m)].AddLocated(bin, hist, c.v, c.area)
+			accs[bits.TrailingZeros64(m)].AddLocated(bin, c.v, c.area)
 		}
 	}
 	// The numbers check by hand: on extent 0 (area 46) the test presences

@@ -18,19 +18,11 @@ type testCase struct {
 	train []float64
 }
 
-// build makes a layout and accumulator for c with a histogram over the
-// background's range.
+// build makes a layout and accumulator for c.
 func build(t testing.TB, c testCase, fixed []float64, histBins int) (*Layout, *Accumulator) {
 	t.Helper()
 	vals := append(append(slices.Clone(c.test), c.train...), fixed...)
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, v := range c.bgV {
-		lo, hi = math.Min(lo, v), math.Max(hi, v)
-	}
-	if !(lo < hi) {
-		lo, hi = lo-1, lo+1
-	}
-	l, err := NewLayout(vals, lo, hi, histBins)
+	l, err := NewLayout(vals, histBins)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -24,7 +24,9 @@ const minHistBins = 16
 // once per model from every value at which an exact area is needed: the
 // model's values at all presences (training and test) and the fixed
 // thresholds. A Layout is immutable, so one Layout may be used by many
-// goroutines at once.
+// goroutines at once. It depends on these values and on the fine
+// histogram's bin count only, not on the model's value range: every shard
+// of a run builds the same layout without reading the raster first.
 //
 // For m sorted distinct values d_0 < d_1 < ... < d_{m-1} there are 2m+1
 // exact bins:
@@ -36,56 +38,75 @@ const minHistBins = 16
 //
 // Summing exact bins gives the area strictly below, at, and at or above any
 // d_j without error, which is all that AUC, partial ROC and threshold
-// statistics need. Beside the exact bins the layout defines a fine histogram
-// of histBins equal bins over [histMin, histMax) that the Boyce index reads.
+// statistics need. Beside the exact bins each Accumulator keeps a fine
+// histogram of histBins bins on a grid fixed by its own values (see
+// Accumulator), which the Boyce index reads.
 type Layout struct {
 	d  []float64 // sorted distinct values
 	ds []float64 // d followed by two NaN sentinels (compare false, like values > v)
 
-	// One lookup grid serves both bin searches: nb = hBins << shift equal
-	// buckets over [hMin, hMax), bucket(v) = clamp(floor((v-hMin)*scale),
-	// 0, nb-1). The fine-histogram bin is bucket(v) >> shift (scale is
-	// hScale times a power of two, so this equals floor((v-hMin)*hScale)
-	// exactly). idx[k] is the first j with bucket(d[j]) >= k, so the
+	// A lookup grid narrows the exact-bin search: nb equal buckets over
+	// [d_0, d_{m-1}], bucket(v) = clamp(floor((v-d_0)*scale), 0, nb-1),
+	// monotone in v. idx[k] is the first j with bucket(d[j]) >= k, so the
 	// exact-bin candidates for v in bucket k are d[idx[k]:idx[k+1]].
+	lo    float64
 	scale float64
 	nb    int
 	nbf   float64 // float64(nb)
-	shift uint
 	idx   []int32
 
-	hMin, hMax, hScale float64
-	hBins              int
+	hBins int
+
+	// hFloor is the finest histogram grid exponent any accumulator on
+	// this layout may use, when floored (see WithHistFloor).
+	hFloor  int
+	floored bool
+}
+
+// LayoutOption sets an optional property of a Layout in NewLayout.
+type LayoutOption func(*Layout) error
+
+// WithHistFloor fixes the finest grid an accumulator's fine histogram may
+// use: its exponent is never below e (minGridExp..1023), so every bin is a
+// union of bins [g*2^e, (g+1)*2^e) of the floor grid and every histogram
+// edge of any accumulator on the layout is a multiple of 2^e, known before
+// the pass. Without it (the default, used for rasters) the grid follows
+// each accumulator's own range alone. With it the canonical exponent of a
+// range is max(e, the unfloored one), still growing with the range, so
+// adding, merging and decoding stay order independent (see gridExp).
+//
+// The distance-only null uses it so that a cell's proven bounds can be
+// checked against every histogram edge before the pass (see HistFloor).
+func WithHistFloor(e int) LayoutOption {
+	return func(l *Layout) error {
+		if e < minGridExp || e > 1023 {
+			return fmt.Errorf("metrics: histogram floor exponent %d, want %d..1023", e, minGridExp)
+		}
+		l.hFloor, l.floored = e, true
+		return nil
+	}
+}
+
+// FloorExp returns the exponent of the largest power of two at or below
+// x (x > 0, finite, normal): 2^e <= x < 2^(e+1).
+func FloorExp(x float64) int {
+	_, ex := math.Frexp(x) // x = f*2^ex, 0.5 <= f < 1
+	return ex - 1
 }
 
 // NewLayout builds the layout of one model. values are every presence value
 // (training and test) and every fixed threshold of the model, in any order,
-// duplicates allowed; each must be finite. histMin < histMax (both finite)
-// is the range of the fine histogram: values outside it are clamped into the
-// end bins (exact minimum and maximum are tracked separately by each
-// Accumulator). histBins must be in 16..2^20. Give the histogram the model's
-// whole value range: Locate is fastest when the layout values lie inside it.
-func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layout, error) {
+// duplicates allowed; each must be finite. histBins, in 16..2^20, is the
+// size of each accumulator's fine histogram.
+func NewLayout(values []float64, histBins int, opts ...LayoutOption) (*Layout, error) {
 	for i, v := range values {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return nil, fmt.Errorf("metrics: layout value %d is %v; every value must be finite", i, v)
 		}
 	}
-	if math.IsNaN(histMin) || math.IsInf(histMin, 0) || math.IsNaN(histMax) || math.IsInf(histMax, 0) {
-		return nil, fmt.Errorf("metrics: histogram range [%v, %v] must be finite", histMin, histMax)
-	}
-	if !(histMin < histMax) {
-		return nil, fmt.Errorf("metrics: histogram range needs histMin < histMax, got [%v, %v]", histMin, histMax)
-	}
 	if histBins < minHistBins || histBins > maxHistBins {
 		return nil, fmt.Errorf("metrics: histBins is %d, want %d..%d", histBins, minHistBins, maxHistBins)
 	}
-	span := histMax - histMin
-	hScale := float64(histBins) / span
-	if math.IsInf(span, 0) || math.IsInf(hScale, 0) || !(hScale > 0) {
-		return nil, fmt.Errorf("metrics: histogram range [%v, %v] is too narrow or too wide for %d bins", histMin, histMax, histBins)
-	}
-
 	d := slices.Clone(values)
 	slices.Sort(d)
 	d = slices.Compact(d) // -0 and +0 compare equal and collapse too
@@ -99,25 +120,27 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 		return nil, fmt.Errorf("metrics: %d distinct layout values, at most %d are supported", m, maxLayoutValues)
 	}
 	ds := append(d[:m:m], math.NaN(), math.NaN())
-	l := &Layout{d: ds[:m], ds: ds, hMin: histMin, hMax: histMax, hScale: hScale, hBins: histBins}
-
-	// Refine the grid until about 4 buckets per layout value fall on the
-	// layout values' span (clamped to the histogram range), so that most
-	// buckets hold at most two candidates.
-	covered := 1.0 // share of the histogram range spanned by the values
-	if m >= 2 {
-		if lo, hi := math.Max(d[0], histMin), math.Min(d[m-1], histMax); hi > lo {
-			covered = math.Max((hi-lo)/span, 1/float64(histBins))
+	l := &Layout{d: ds[:m], ds: ds, hBins: histBins, nb: 1}
+	for _, o := range opts {
+		if err := o(l); err != nil {
+			return nil, err
 		}
 	}
-	for float64(histBins<<l.shift)*covered < 4*float64(m) && histBins<<(l.shift+1) <= maxLookup &&
-		!math.IsInf(hScale*float64(uint64(1)<<(l.shift+1)), 0) {
-		l.shift++
-	}
-	l.nb = histBins << l.shift
-	l.nbf = float64(l.nb)
-	l.scale = hScale * float64(uint64(1)<<l.shift)
 
+	// About 4 buckets per layout value over their span, so that most
+	// buckets hold at most two candidates. A span that overflows (or one
+	// value) leaves one bucket: bisection, still exact.
+	if m >= 2 {
+		span := d[m-1] - d[0]
+		for l.nb < 4*m && l.nb < maxLookup {
+			l.nb <<= 1
+		}
+		l.lo, l.scale = d[0], float64(l.nb)/span
+		if math.IsInf(span, 0) || math.IsInf(l.scale, 0) || !(l.scale > 0) {
+			l.nb, l.scale = 1, 0
+		}
+	}
+	l.nbf = float64(l.nb)
 	l.idx = make([]int32, l.nb+1)
 	j := 0
 	for k := 0; k <= l.nb; k++ {
@@ -132,7 +155,7 @@ func NewLayout(values []float64, histMin, histMax float64, histBins int) (*Layou
 // bucket maps v to its lookup bucket, clamped to [0, nb-1] (NaN gives 0).
 // It is monotone non-decreasing in v, which is what makes the lookup exact.
 func (l *Layout) bucket(v float64) int {
-	x := (v - l.hMin) * l.scale
+	x := (v - l.lo) * l.scale
 	switch {
 	case !(x >= 0):
 		return 0
@@ -142,21 +165,19 @@ func (l *Layout) bucket(v float64) int {
 	return l.nb - 1
 }
 
-// Locate returns the exact bin of v (see Layout) and its fine-histogram bin.
-// It costs O(1) on average: one lookup grid gives the histogram bin and
-// narrows the exact search to the (usually at most two) layout values in
-// v's bucket, which are compared without branches; a crowded bucket falls
-// back to bisection. NaN is mapped to (0, 0); callers that may see NaN
-// should use Accumulator.Add, which skips it.
-func (l *Layout) Locate(v float64) (bin, hist int) {
+// Locate returns the exact bin of v (see Layout). It costs O(1) on average:
+// the lookup grid narrows the search to the (usually at most two) layout
+// values in v's bucket, which are compared without branches; a crowded
+// bucket falls back to bisection. NaN is mapped to 0; callers that may see
+// NaN should use Accumulator.Add, which skips it.
+func (l *Layout) Locate(v float64) int {
 	k := 0
-	if x := (v - l.hMin) * l.scale; x >= 0 { // false for NaN
+	if x := (v - l.lo) * l.scale; x >= 0 { // false for NaN
 		k = l.nb - 1
 		if x < l.nbf {
 			k = int(x)
 		}
 	}
-	hist = k >> l.shift
 	j, end := int(l.idx[k]), int(l.idx[k+1])
 	if end-j > 2 {
 		// Crowded bucket: bisect for the first d >= v in d[j:end]. Written
@@ -171,18 +192,19 @@ func (l *Layout) Locate(v float64) (bin, hist int) {
 			}
 		}
 		if lo < end && l.d[lo] == v {
-			return 2*lo + 1, hist
+			return 2*lo + 1
 		}
-		return 2 * lo, hist
+		return 2 * lo
 	}
 	// At most two candidates a = d[j], b = d[j+1]; every d from end on is
-	// > v (or a NaN sentinel, for which < and == are false as well). So the first d >= v is d[j + (a<v) + (b<v)],
-	// and it equals v iff a or b does. The two loads are independent, which
-	// keeps the dependency chain short.
+	// > v (or a NaN sentinel, for which < and == are false as well). So the
+	// first d >= v is d[j + (a<v) + (b<v)], and it equals v iff a or b
+	// does. The two loads are independent, which keeps the dependency
+	// chain short.
 	w := l.ds[j : j+2 : j+2]
 	a, b := w[0], w[1]
 	j += b2i(a < v) + b2i(b < v)
-	return 2*j + (b2i(a == v) | b2i(b == v)), hist
+	return 2*j + (b2i(a == v) | b2i(b == v))
 }
 
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.
@@ -191,22 +213,46 @@ func (l *Layout) Values() []float64 { return slices.Clone(l.d) }
 // Bins returns the number of exact bins, 2m+1.
 func (l *Layout) Bins() int { return 2*len(l.d) + 1 }
 
-// HistBins returns the number of fine-histogram bins.
+// HistBins returns the number of bins of each accumulator's fine histogram.
 func (l *Layout) HistBins() int { return l.hBins }
 
-// HistRange returns the fine histogram's range [histMin, histMax).
-func (l *Layout) HistRange() (histMin, histMax float64) { return l.hMin, l.hMax }
+// HistFloor returns the layout's histogram floor exponent e and true, or
+// 0 and false when it has none (see WithHistFloor).
+func (l *Layout) HistFloor() (e int, ok bool) { return l.hFloor, l.floored }
 
-// histWidth is the width of one fine-histogram bin.
-func (l *Layout) histWidth() float64 { return (l.hMax - l.hMin) / float64(l.hBins) }
-
-// histEdge returns the lower edge of fine-histogram bin k (k = hBins gives
-// the upper end of the range).
-func (l *Layout) histEdge(k int) float64 {
-	if k >= l.hBins {
-		return l.hMax
+// FloorBin returns the bin of v on the floor grid, floor(v * 2^-e) for
+// the floor exponent e (-0 counted as +0, as Accumulator.Add does); it is
+// meaningful only when HistFloor reports a floor. An accumulator on l
+// whose histogram has exponent e' >= e puts v in grid bin
+// FloorBin(v) >> (e'-e) (dyadic bins of a coarser level are unions of
+// floor bins), so two values with the same FloorBin share the histogram
+// bin of every accumulator on l, whatever its range: the bins are known
+// before the pass.
+func (l *Layout) FloorBin(v float64) int64 {
+	if v == 0 {
+		v = 0
 	}
-	return l.hMin + float64(k)*l.histWidth()
+	return gridBin(v, l.hFloor)
+}
+
+// histExp returns the canonical histogram exponent of the range [lo, hi]
+// on l: gridExp, raised to the floor when there is one.
+func (l *Layout) histExp(lo, hi float64) int {
+	e := gridExp(lo, hi, l.hBins)
+	if l.floored {
+		e = max(e, l.hFloor)
+	}
+	return e
+}
+
+// minExp returns the smallest histogram exponent an accumulator on l may
+// hold for the range [lo, hi].
+func (l *Layout) minExp(lo, hi float64) int {
+	e := gridFloor(lo, hi)
+	if l.floored {
+		e = max(e, l.hFloor)
+	}
+	return e
 }
 
 // index returns j such that v == d_j, or -1 when v is not a layout value.

@@ -101,6 +101,19 @@ type Evaluator struct {
 	// hold its value (first > last when none).
 	win         []boyceWindow
 	first, last []int
+	// The window midpoints' side of the Boyce index's Spearman correlation,
+	// fixed per evaluator: their average ranks centred on their mean, and
+	// the sum of squares, summed in window order as Spearman does.
+	midDev []float64
+	midSS  float64
+}
+
+// evalScratch is the working memory of one eval call, reused across
+// resamples.
+type evalScratch struct {
+	groups, diff            []int
+	keys                    []uint64
+	ratio, groupRank, ranks []float64
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -179,6 +192,18 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.first[k], e.last[k] = f, lst
 	}
+	mid := make([]float64, len(e.win))
+	for w, bw := range e.win {
+		mid[w] = bw.mid
+	}
+	ry, _ := Ranks(mid)
+	my := Mean(ry)
+	e.midDev = make([]float64, len(ry))
+	for w, r := range ry {
+		dy := r - my
+		e.midDev[w] = dy
+		e.midSS += dy * dy
+	}
 	return e, nil
 }
 
@@ -201,20 +226,29 @@ type Values struct {
 // eval scores the multiset with count[k] copies of presence k.
 func (e *Evaluator) eval(count []int32) Values {
 	var out Values
-	out.Ratio = make([]float64, len(e.es))
-	out.RatioOK = make([]bool, len(e.es))
-	out.Omission = make([]float64, len(e.below))
+	e.evalInto(count, &out, &evalScratch{})
+	return out
+}
+
+// evalInto is eval writing into out (its slices reused when long enough)
+// with scratch memory sc.
+func (e *Evaluator) evalInto(count []int32, out *Values, sc *evalScratch) {
+	out.Ratio = resize(out.Ratio, len(e.es))
+	out.RatioOK = resize(out.RatioOK, len(e.es))
+	out.Omission = resize(out.Omission, len(e.below))
+	out.AUC, out.AUCUnweighted, out.Boyce, out.BoyceOK = 0, 0, 0, false
 	r := 0
 	for _, c := range count {
 		r += int(c)
 	}
 	out.N = r
 	if r == 0 {
-		return out
+		return
 	}
 	rf := float64(r)
 	var sa, su float64
-	groups := make([]int, len(e.p.j))
+	groups := resize(sc.groups, len(e.p.j))
+	sc.groups = groups
 	for k, c := range count {
 		if c == 0 {
 			continue
@@ -240,7 +274,8 @@ func (e *Evaluator) eval(count []int32) Values {
 		out.Omission[t] = float64(om) / rf
 	}
 	if len(e.win) >= 3 {
-		diff := make([]int, len(e.win)+1)
+		diff := resize(sc.diff, len(e.win)+1)
+		sc.diff = diff
 		for k, c := range count {
 			if c == 0 || e.first[k] > e.last[k] {
 				continue
@@ -248,17 +283,94 @@ func (e *Evaluator) eval(count []int32) Values {
 			diff[e.first[k]] += int(c)
 			diff[e.last[k]+1] -= int(c)
 		}
-		ratio := make([]float64, len(e.win))
-		mid := make([]float64, len(e.win))
+		ratio := resize(sc.ratio, len(e.win))
+		sc.ratio = ratio
 		run := 0
 		for w, bw := range e.win {
 			run += diff[w]
 			ratio[w] = (float64(run) / rf) / bw.share
-			mid[w] = bw.mid
 		}
-		out.Boyce, out.BoyceOK, _ = boyceIndex(ratio, mid)
+		out.Boyce, out.BoyceOK = e.boyceRho(ratio, sc)
 	}
-	return out
+}
+
+// boyceRho is boyceIndex(ratio, midpoints) with the midpoints' ranks
+// precomputed: the same operations in the same order as Spearman, so the
+// same bits.
+func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
+	rx := averageRanksInto(ratio, sc)
+	mx := Mean(rx)
+	var sxy, sxx float64
+	for i, r := range rx {
+		dx := r - mx
+		sxy += dx * e.midDev[i]
+		sxx += dx * dx
+	}
+	if !(sxx > 0) || !(e.midSS > 0) {
+		return 0, false
+	}
+	rho := sxy / math.Sqrt(sxx*e.midSS)
+	return math.Max(-1, math.Min(1, rho)), true
+}
+
+// averageRanksInto returns the 1-based average ranks of v, as
+// Ranks does (ties share the mean of their positions, computed with
+// the same expression), in sc.ranks, using sc's keys and groupRank as
+// scratch. For values >= +0 (the Boyce P/E ratios) it sorts their bit
+// patterns, which order as the values do, and finds each value's tie group
+// by bisection; any other value falls back to Ranks.
+func averageRanksInto(v []float64, sc *evalScratch) []float64 {
+	n := len(v)
+	keys := resize(sc.keys, n)
+	sc.keys = keys
+	for i, x := range v {
+		k := math.Float64bits(x)
+		if k>>63 != 0 || x != x { // negative, -0 or NaN
+			r, _ := Ranks(v)
+			sc.ranks = append(sc.ranks[:0], r...)
+			return sc.ranks
+		}
+		keys[i] = k
+	}
+	slices.Sort(keys)
+	// groupRank[i]: the average rank of the tie group that starts at i.
+	groupRank := resize(sc.groupRank, n)
+	sc.groupRank = groupRank
+	for i := 0; i < n; {
+		j := i
+		for j+1 < n && keys[j+1] == keys[i] {
+			j++
+		}
+		groupRank[i] = float64(i+j)/2 + 1
+		i = j + 1
+	}
+	ranks := resize(sc.ranks, n)
+	sc.ranks = ranks
+	for i, x := range v {
+		k := math.Float64bits(x)
+		lo, hi := 0, n // first position of k in keys
+		for lo < hi {
+			m := int(uint(lo+hi) >> 1)
+			if keys[m] < k {
+				lo = m + 1
+			} else {
+				hi = m
+			}
+		}
+		ranks[i] = groupRank[lo]
+	}
+	return ranks
+}
+
+// resize returns s with length n and every element zero, reusing its
+// memory when large enough.
+func resize[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n)
+	}
+	s = s[:n]
+	clear(s)
+	return s
 }
 
 // ones returns count 1 for every presence whose global index is in keep
@@ -288,16 +400,21 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 		}
 	}
 	global := make([]int32, d.N)
-	own := make([]int32, len(e.ids))
 	var aucs []float64
 	for b := 0; b < d.B; b++ {
 		d.fill(b, global)
+		// The AUC of eval: the mean placement over the drawn copies,
+		// summed in the same order.
+		r := 0
+		var sa float64
 		for k, id := range e.ids {
-			own[k] = global[id]
+			if c := global[id]; c != 0 {
+				r += int(c)
+				sa += float64(c) * e.v[k]
+			}
 		}
-		v := e.eval(own)
-		if v.N > 0 {
-			aucs = append(aucs, v.AUC)
+		if r > 0 {
+			aucs = append(aucs, sa/float64(r))
 		}
 	}
 	if len(aucs) < 2 {
@@ -408,13 +525,16 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 	global := make([]int32, d.N)
 	if len(pa) > 0 {
+		var ra, rb Values
+		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
 			d.fill(r, global)
 			for k := range pa {
 				c := global[a.ids[pa[k]]]
 				ca[pa[k]], cb[pb[k]] = c, c
 			}
-			ra, rb := a.eval(ca), b.eval(cb)
+			a.evalInto(ca, &ra, &sa)
+			b.evalInto(cb, &rb, &sb)
 			for i := 0; i < nE; i++ {
 				if ra.RatioOK[i] && rb.RatioOK[i] {
 					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])

@@ -98,7 +98,7 @@ func TestPairedAgainstNumpy(t *testing.T) {
 				for _, p := range c.Points {
 					pv = append(pv, f[p])
 				}
-				l, err := NewLayout(pv, slices.Min(f), slices.Max(f)+1, 64)
+				l, err := NewLayout(pv, 64)
 				if err != nil {
 					t.Fatal(err)
 				}

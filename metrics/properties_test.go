@@ -208,7 +208,7 @@ func TestMergeOrder(t *testing.T) {
 			t.Errorf("%d parts, tree merge: Scores differ from single pass", parts)
 		}
 	}
-	other, _ := NewLayout(c.test, 0, 1, 16)
+	other, _ := NewLayout(c.test, 16)
 	if err := whole.Merge(other.NewAccumulator()); err == nil || !strings.HasPrefix(err.Error(), "metrics: ") {
 		t.Errorf("Merge across layouts: err = %v", err)
 	}
@@ -305,7 +305,7 @@ func TestRing(t *testing.T) {
 // TestRingRangeExact: when the ring's extremes are layout values, Sub knows
 // them exactly.
 func TestRingRangeExact(t *testing.T) {
-	l, err := NewLayout([]float64{1, 5}, 0, 10, 16)
+	l, err := NewLayout([]float64{1, 5}, 16)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -326,34 +326,39 @@ func TestRingRangeExact(t *testing.T) {
 	inner.Add(1, 2)
 	inner.Add(5, 2)
 	ring, _ = outer.Sub(inner)
-	// Ring holds 0.5, 3, 9: bounds from histogram bins of width 10/16.
+	// Ring holds 0.5, 3, 9: bounds from the exact bins and the histogram,
+	// whose grid for the outer range [0.5, 9] in 16 bins has width 1
+	// (exponent 0: bins 0..9; width 1/2 would need 18).
 	if ring.RangeExact() || ring.Min() > 0.5 || ring.Max() < 9 || ring.Min() < 0 || ring.Max() > 10 {
 		t.Errorf("ring range [%v,%v] exact=%v, want bounds around [0.5, 9]", ring.Min(), ring.Max(), ring.RangeExact())
 	}
-	if ring.Min() < 0.5-0.625 || ring.Max() > 9+0.625 {
+	if ring.Min() < 0.5-1 || ring.Max() > 9+1 {
 		t.Errorf("ring bounds [%v,%v] looser than one histogram bin", ring.Min(), ring.Max())
 	}
 }
 
 // TestBoyceAligned: with background values at histogram bin centres and
 // windows aligned to bin edges, the histogram is exact, so the Boyce
-// windows must match a brute-force count over cells and presences.
+// windows must match a brute-force count over cells and presences. With
+// 128 bins the range [0, 1] lies on the grid of exponent -6 (bins of
+// width 1/64: 2^6 = 64 < 128 bins, 2^7 = 128 would not fit), and windows
+// of width 1/8 in 57 steps start at multiples of 1/64.
 func TestBoyceAligned(t *testing.T) {
 	r := rand.New(rand.NewPCG(17, 18))
 	var c testCase
-	centre := func(k int) float64 { return (float64(k) + 0.5) / 100 }
+	centre := func(k int) float64 { return (float64(k) + 0.5) / 64 }
 	for i := 0; i < 3000; i++ {
-		k := r.IntN(100)
+		k := r.IntN(64)
 		c.bgV = append(c.bgV, centre(k))
 		c.bgW = append(c.bgW, int64(1+r.IntN(5)))
 	}
 	c.bgV = append(c.bgV, 0, 1) // range exactly [0,1]
 	c.bgW = append(c.bgW, 1, 1)
 	for i := 0; i < 150; i++ {
-		k := int(math.Sqrt(r.Float64()) * 100) // more presences at high values
-		c.test = append(c.test, centre(min(k, 99)))
+		k := int(math.Sqrt(r.Float64()) * 64) // more presences at high values
+		c.test = append(c.test, centre(min(k, 63)))
 	}
-	l, err := NewLayout(c.test, 0, 1, 100)
+	l, err := NewLayout(c.test, 128)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -361,13 +366,17 @@ func TestBoyceAligned(t *testing.T) {
 	for i, v := range c.bgV {
 		a.Add(v, c.bgW[i])
 	}
-	s := Settings{E: []float64{0.05}, Iterations: 1, BoyceWidth: 0.1, BoyceSteps: 91}
+	if a.he != -6 {
+		t.Fatalf("grid exponent %d, want -6", a.he)
+	}
+	const steps = 57
+	s := Settings{E: []float64{0.05}, Iterations: 1, BoyceWidth: 0.125, BoyceSteps: steps}
 	sc, err := Score(a, nil, c.test, s)
 	if err != nil {
 		t.Fatal(err)
 	}
 	b := sc.Boyce
-	if !b.Defined || b.Windows != 91 || b.Used != 91 {
+	if !b.Defined || b.Windows != steps || b.Used != steps {
 		t.Fatalf("Boyce %+v", b)
 	}
 	var tot float64
@@ -375,8 +384,8 @@ func TestBoyceAligned(t *testing.T) {
 		tot += float64(w)
 	}
 	var mids, ratios []float64
-	for i := 0; i < 91; i++ {
-		lo, hi := float64(i)/100, float64(i+10)/100
+	for i := 0; i < steps; i++ {
+		lo, hi := float64(i)/64, float64(i+8)/64
 		var e float64
 		for j, v := range c.bgV {
 			if v >= lo && v <= hi {
@@ -389,7 +398,7 @@ func TestBoyceAligned(t *testing.T) {
 				p++
 			}
 		}
-		mids = append(mids, lo+0.05)
+		mids = append(mids, lo+0.0625)
 		ratios = append(ratios, (float64(p)/150)/(e/tot))
 	}
 	for i := range mids {
@@ -426,7 +435,7 @@ func TestBoyceUndefined(t *testing.T) {
 		{"two windows", 0.1, 2},
 		{"full-width windows", 1, 10},
 	}
-	l, _ := NewLayout([]float64{0.2, 0.8}, 0, 1, 32)
+	l, _ := NewLayout([]float64{0.2, 0.8}, 32)
 	a := l.NewAccumulator()
 	for i := 0; i <= 100; i++ {
 		a.Add(float64(i)/100, 1)
@@ -446,7 +455,7 @@ func TestBoyceUndefined(t *testing.T) {
 
 // TestDegenerate covers records that cannot be scored and input errors.
 func TestDegenerate(t *testing.T) {
-	l, _ := NewLayout([]float64{1, 2, 3}, 0, 4, 16)
+	l, _ := NewLayout([]float64{1, 2, 3}, 16)
 	filled := func(vals ...float64) *Accumulator {
 		a := l.NewAccumulator()
 		for _, v := range vals {
@@ -648,7 +657,7 @@ func TestThresholdTrain(t *testing.T) {
 	inside := []float64{0.6, 0.8, 0.9}
 	test := []float64{0.3, 0.5, 0.7, 0.9}
 	vals := append(append(append([]float64{}, all...), test...), 0.7)
-	l, err := NewLayout(vals, 0, 1, 64)
+	l, err := NewLayout(vals, 64)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -40,7 +40,7 @@ func TestDecomposeRing(t *testing.T) {
 		for i := range test {
 			test[i] = float64(rng.IntN(12)) / 4
 		}
-		lay, err := NewLayout(test, 0, 3, 32)
+		lay, err := NewLayout(test, 32)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -81,7 +81,7 @@ func TestDecomposeRing(t *testing.T) {
 			t.Errorf("case %d: mix %v, outer %v", k, mix, r.AUCOuter)
 		}
 	}
-	lay, err := NewLayout([]float64{1}, 0, 3, 32)
+	lay, err := NewLayout([]float64{1}, 32)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -106,7 +106,7 @@ func TestThresholdRulesMatchScore(t *testing.T) {
 			test[i] = float64(rng.IntN(10)) / 8
 		}
 		fixed := []float64{0.3, 0.7}
-		lay, err := NewLayout(append(append(append([]float64{}, train...), test...), fixed...), 0, 2, 32)
+		lay, err := NewLayout(append(append(append([]float64{}, train...), test...), fixed...), 32)
 		if err != nil {
 			t.Fatal(err)
 		}

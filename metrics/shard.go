@@ -35,8 +35,15 @@ import (
 //	checksum  32 bytes  SHA-256 of every byte before it
 
 // PartialFormatVersion is the version of the partial-file format (the
-// envelope and the header's fields). DecodePartial refuses other versions.
-const PartialFormatVersion = 1
+// envelope and the header's fields, and what its sections carry).
+// DecodePartial refuses other versions.
+//
+// Version 2: the sections carry layouts and accumulators of
+// EncodingVersion 2 (no histogram range in the layout; each accumulator's
+// histogram on its own grid), so a version 1 file is refused with a
+// message naming the format rather than deep inside a section.
+// Version 3: layouts of EncodingVersion 3 (with the histogram floor).
+const PartialFormatVersion = 3
 
 const (
 	partialMagic   = "ASPF"

@@ -3,6 +3,7 @@ package metrics
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"math/rand/v2"
@@ -73,7 +74,7 @@ func TestCheckShardSetRefuses(t *testing.T) {
 		{"tail", func(h []ShardHeader) []ShardHeader { h[2].Blocks[0].End--; return h }, ErrShardBlocks, "blocks 9 to 9 are in no shard"},
 		{"shard out of range", func(h []ShardHeader) []ShardHeader { h[0].Shard = 4; return h }, ErrShardHeader, "shard 4/3"},
 		{"bad checksum text", func(h []ShardHeader) []ShardHeader { h[0].Settings = "abc"; return h }, ErrShardHeader, "settings hash"},
-		{"other format", func(h []ShardHeader) []ShardHeader { h[0].Format = 2; return h }, ErrPartialFormat, "format 2"},
+		{"other format", func(h []ShardHeader) []ShardHeader { h[0].Format = 1; return h }, ErrPartialFormat, "format 1"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -209,10 +210,12 @@ func TestDecodePartialRefuses(t *testing.T) {
 			t.Fatalf("byte %d changed: accepted", i)
 		}
 	}
-	v2 := bytes.Clone(good)
-	v2[4] = 2
-	if _, err := DecodePartial(reseal(v2), "f"); !errors.Is(err, ErrPartialFormat) || !bytes.Contains([]byte(err.Error()), []byte("format 2")) {
-		t.Fatalf("version 2: %v", err)
+	for _, old := range []byte{1, 2} { // files of the previous formats
+		v := bytes.Clone(good)
+		v[4] = old
+		if _, err := DecodePartial(reseal(v), "f"); !errors.Is(err, ErrPartialFormat) || !bytes.Contains([]byte(err.Error()), []byte(fmt.Sprintf("format %d", old))) {
+			t.Fatalf("version %d: %v", old, err)
+		}
 	}
 	if _, err := EncodePartial(&PartialFile{Header: h, Sections: []PartialSection{{"a", nil}, {"a", nil}}}); !errors.Is(err, ErrShardHeader) {
 		t.Fatalf("repeated section: %v", err)
@@ -236,7 +239,7 @@ func FuzzDecodePartial(f *testing.F) {
 	f.Add(good)
 	f.Add(good[6 : len(good)-sha256.Size])
 	f.Fuzz(func(t *testing.T, data []byte) {
-		sealed := append([]byte(partialMagic), 1, 0)
+		sealed := binary.LittleEndian.AppendUint16([]byte(partialMagic), PartialFormatVersion)
 		sealed = append(sealed, data...)
 		sum := sha256.Sum256(sealed)
 		sealed = append(sealed, sum[:]...)

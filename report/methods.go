@@ -114,7 +114,7 @@ func methodsText(r *Results) string {
 	}
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram over the model's exact value range, each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
 	}
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")

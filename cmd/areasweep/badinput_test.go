@@ -490,6 +490,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
+		// A later pass finds it itself (no range read before the pass).
+		{"null all no data", f.run("--null", "n="+allNoData), 2, []string{"model n", "allnodata.tif", "every cell", "no data"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
 		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 

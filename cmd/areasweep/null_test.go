@@ -1,7 +1,9 @@
 package main
 
 import (
+	"context"
 	"fmt"
+	"io"
 	"math"
 	"path/filepath"
 	"slices"
@@ -10,10 +12,12 @@ import (
 	"github.com/airbusgeo/godal"
 
 	"areasweep/cmd/internal/pass"
+	"areasweep/cmd/internal/pipeline"
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
@@ -71,9 +75,19 @@ func runWithNullValues(t *testing.T, s *smallStudy, out string) (res *report.Res
 // every extent: value range, AUCs, the placements and their SE, DeLong's
 // full variance, the AUC's SD over the paired resamples (seeded by the run
 // alone), the full-sample partial ROC ratio, every threshold test, rings and
-// omission lists. Two things differ by design and are not compared: the
-// published half-size bootstrap (its stream is seeded by the model's name) and the Boyce index (its fine histogram spans the exact value range
-// for a raster, [-FarthestBound, 0] for the null).
+// omission lists, and the Boyce index's windows. One thing differs by
+// design and is not compared: the published half-size bootstrap (its
+// stream is seeded by the model's name).
+//
+// The Boyce index's ratios and index are compared exactly too, but on a
+// second, in-process run of the same study in which the copy's layout
+// carries the null's histogram floor: the virtual null's fine histograms
+// are never finer than its floor grid (metrics.WithHistFloor, the price of
+// scoring cells from their bounds), while a raster, the copy included, has
+// none, so in the binary's run the copy's Boyce index is read from finer
+// histograms on the extents whose range is narrow. With the same floor the
+// copy must score exactly what the null scores, Boyce index included.
+//
 // It also checks the roles, that the sensitivity analysis leaves both nulls
 // out, and the sorting-bias ratios against a brute-force computation from
 // the raw cells (Distance to every training point, true cell areas).
@@ -104,34 +118,9 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	if res.Sensitivity == nil || slices.Contains(res.Sensitivity.ModelNames, "copy") || slices.Contains(res.Sensitivity.ModelNames, report.DistanceNullName) {
 		t.Errorf("nulls in the sensitivity analysis: %v", res.Sensitivity)
 	}
-	byModel := map[string]map[string]report.Score{}
-	for _, sc := range res.Scores {
-		if byModel[sc.Model] == nil {
-			byModel[sc.Model] = map[string]report.Score{}
-		}
-		byModel[sc.Model][sc.Extent] = sc
-	}
-	compared := 0
-	for id, v := range byModel[report.DistanceNullName] {
-		c := byModel["copy"][id]
-		key := func(sc report.Score) string {
-			ratios := ""
-			for _, p := range sc.PartialROC {
-				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations)
-			}
-			return fmt.Sprint(sc.Scored, sc.NotScored, sc.Cells, sc.AreaKm2, sc.TestPoints, sc.TrainPoints, sc.TestOutside, sc.TrainOutside,
-				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE, sc.AUCUnweightedSEDeLong, sc.AUCBootSD, sc.Placements, sc.PlacementsUnweighted, ratios, sc.Thresholds)
-		}
-		if key(v) != key(c) {
-			t.Errorf("extent %s: virtual null\n %s\nGeoTIFF copy\n %s", id, key(v), key(c))
-		}
-		if v.Scored {
-			compared++
-		}
-	}
-	if compared < 5 {
-		t.Errorf("only %d scored extents compared", compared)
-	}
+	compareNullAndCopy(t, res, false)
+	floor := pass.DistanceNullFloor(pass.DistanceNull(g, mustIndex(t, lats, lons)), g, 4096)
+	compareNullAndCopy(t, runCopyFloored(t, s.args(filepath.Join(s.dir, "out3"), "--null", "copy="+copyPath), "copy", floor), true)
 	ringKey := func(model string) string {
 		k := ""
 		for _, r := range res.Rings {
@@ -218,4 +207,115 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	if checked < 5 {
 		t.Errorf("sorting bias checked on %d extents only", checked)
 	}
+}
+
+// compareNullAndCopy checks that the virtual null and the raster null
+// "copy" of res score the same on every extent, field for field; the Boyce
+// index's ratios and index only with withBoyce (see
+// TestDistanceNullEqualsItsGeoTIFF).
+func compareNullAndCopy(t *testing.T, res *report.Results, withBoyce bool) {
+	t.Helper()
+	byModel := map[string]map[string]report.Score{}
+	for _, sc := range res.Scores {
+		if byModel[sc.Model] == nil {
+			byModel[sc.Model] = map[string]report.Score{}
+		}
+		byModel[sc.Model][sc.Extent] = sc
+	}
+	compared := 0
+	for id, v := range byModel[report.DistanceNullName] {
+		c := byModel["copy"][id]
+		key := func(sc report.Score) string {
+			ratios := ""
+			for _, p := range sc.PartialROC {
+				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations)
+			}
+			boyce := "none"
+			if b := sc.Boyce; b != nil && withBoyce {
+				boyce = fmt.Sprintf("%+v", *b)
+			} else if b != nil {
+				boyce = fmt.Sprint(b.Windows, b.Used, b.Mid)
+			}
+			return fmt.Sprint(sc.Scored, sc.NotScored, sc.Cells, sc.AreaKm2, sc.TestPoints, sc.TrainPoints, sc.TestOutside, sc.TrainOutside,
+				sc.AUC, sc.AUCUnweighted, sc.AUCTrain, sc.AUCSE, sc.AUCUnweightedSEDeLong, sc.AUCBootSD, sc.Placements, sc.PlacementsUnweighted, ratios, sc.Thresholds, boyce)
+		}
+		if key(v) != key(c) {
+			t.Errorf("extent %s: virtual null\n %s\nGeoTIFF copy\n %s", id, key(v), key(c))
+		}
+		if v.Scored {
+			compared++
+		}
+	}
+	if compared < 5 {
+		t.Errorf("only %d scored extents compared", compared)
+	}
+}
+
+// mustIndex returns the nearest-site index of the sites.
+func mustIndex(t *testing.T, lats, lons []float64) *geodesy.Index {
+	t.Helper()
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ix
+}
+
+// runCopyFloored runs the study of args (a run command line) in this
+// process through the pipeline's own stages, as `run` does, except that
+// the pass of the model named name gets its layout again with the
+// histogram floor exponent floor. It checks that the distance-only null's
+// layout has that floor, and returns the results.
+func runCopyFloored(t *testing.T, args []string, name string, floor int) *report.Results {
+	t.Helper()
+	var opts *RunOptions
+	cmd := newRunCmd(&IO{Out: io.Discard, ErrOut: io.Discard}, func(o *RunOptions) error { opts = o; return nil })
+	cmd.SetArgs(args[1:])
+	cmd.SetOut(io.Discard)
+	cmd.SetErr(io.Discard)
+	if err := cmd.Execute(); err != nil || opts == nil {
+		t.Fatalf("run options: %v", err)
+	}
+	po := opts.Options
+	po.StudyFile, po.Version = opts.Study, version
+	ctx := context.Background()
+	s, err := pipeline.Prepare(ctx, po, pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	floored, nullFloor := false, false
+	s.SetSums(func(s *pipeline.Study, ctx context.Context, p *pipeline.Plan) (*pipeline.Sums, error) {
+		switch {
+		case p.Model.Name == name:
+			if _, ok := p.Layout.HistFloor(); ok {
+				t.Errorf("the raster %s has a histogram floor of its own", name)
+			}
+			l, err := metrics.NewLayout(p.Layout.Values(), p.Layout.HistBins(), metrics.WithHistFloor(floor))
+			if err != nil {
+				return nil, err
+			}
+			p.Layout, floored = l, true
+		case p.Model.NullKind == report.NullDistance:
+			e, ok := p.Layout.HistFloor()
+			if !ok || e != floor {
+				t.Errorf("the distance-only null's layout has floor %d (%v), want %d", e, ok, floor)
+			}
+			nullFloor = true
+		}
+		return (*pipeline.Study).Stream(s, ctx, p)
+	})
+	for i := range s.Passes() {
+		if err := s.Pass(ctx, i); err != nil {
+			t.Fatal(err)
+		}
+	}
+	res, err := s.Finish(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !floored || !nullFloor {
+		t.Fatalf("passes seen: %s %v, distance-only null %v", name, floored, nullFloor)
+	}
+	return res
 }

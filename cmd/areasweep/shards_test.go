@@ -219,6 +219,43 @@ func TestMergeRefuses(t *testing.T) {
 	})
 }
 
+// TestMergeRefusesEmptyModel: a raster null with no cell with data is not
+// an error for a shard, which reads only its own rows of it (no whole
+// raster read for a value range), but the merge, which sees every shard's
+// rows, refuses it as a single run does: exit 2, the file named, nothing
+// written.
+func TestMergeRefusesEmptyModel(t *testing.T) {
+	s := newSmallStudy(t)
+	empty := filepath.Join(s.dir, "empty.tif")
+	v := make([]float64, len(s.vals))
+	for i := range v {
+		v[i] = math.NaN()
+	}
+	writeRaster(t, empty, s.w, s.h, s.gt, v, true)
+	shards := runShards(t, s, filepath.Join(s.dir, "empty"), 2, "--null", "void="+empty)
+	single := filepath.Join(s.dir, "single")
+	_, seRun, codeRun := runBin(t, s.shardArgs(t, single, "--null", "void="+empty)...)
+	out := filepath.Join(s.dir, "merged")
+	_, seMerge, codeMerge := runBin(t, append([]string{"merge", "--quiet", "--out", out}, shards...)...)
+	for what, r := range map[string]struct {
+		se   string
+		code int
+		out  string
+	}{"single run": {seRun, codeRun, single}, "merge": {seMerge, codeMerge, out}} {
+		if r.code != 2 {
+			t.Errorf("%s: exit %d, want 2: %s", what, r.code, r.se)
+		}
+		for _, w := range []string{"model void", "empty.tif", "every cell", "no data"} {
+			if !strings.Contains(r.se, w) {
+				t.Errorf("%s: message lacks %q: %s", what, w, r.se)
+			}
+		}
+		if _, err := os.Stat(r.out); err == nil {
+			t.Errorf("%s: %s was created", what, r.out)
+		}
+	}
+}
+
 // TestShardsShareAFolder: shards run one after another into one folder
 // need --force from the second on, and --force then replaces only the
 // shard's own two files: another shard's files and a whole run's outputs

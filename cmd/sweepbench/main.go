@@ -9,8 +9,10 @@
 //	c  a straightforward per-extent implementation (mask, collect, sort, score),
 //	   written here as a baseline (AUC only; up to -baseline-max-cells)
 //
-// and prints b/a, c/b, the run's peak RSS, cells per second, and how b grows
-// with the number of cells and of extents. `make bench` runs it.
+// and prints b/a, c/b, the run's peak RSS, cells per second, the CPU
+// seconds (user + system) of a and b and their ratio (steadier than wall
+// times when other jobs share the machine), and how b grows with the number
+// of cells and of extents. `make bench` runs it.
 package main
 
 import (

@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"syscall"
 	"time"
 
 	"areasweep/extent"
@@ -30,10 +31,13 @@ type bench struct {
 	runFlags []string
 }
 
-// row is one measured size: times in seconds, RSS in MiB.
+// row is one measured size: times in seconds, RSS in MiB. bareCPU and
+// runCPU are CPU seconds (user + system) of the same measurements: on a
+// machine other jobs share, they move far less than the wall times.
 type row struct {
 	cells, extents      int
 	bare, run, baseline float64
+	bareCPU, runCPU     float64
 	runRSS              float64
 	members             int // extents in the family built (duplicates included)
 	phases              string
@@ -43,7 +47,7 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 	extent.Configure()
 	var rows []row
 	fmt.Printf("machine: %d cores (GOMAXPROCS %d), %s\n", runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.GOARCH)
-	fmt.Printf("%-12s %-8s %-9s %-9s %-7s %-11s %-7s %-10s %-12s\n", "cells", "extents", "a bare s", "b run s", "b/a", "c baseline s", "c/b", "b RSS MiB", "b cells/s")
+	fmt.Printf("%-12s %-8s %-9s %-9s %-7s %-11s %-7s %-10s %-12s %-9s %-9s %-9s\n", "cells", "extents", "a bare s", "b run s", "b/a", "c baseline s", "c/b", "b RSS MiB", "b cells/s", "a CPU s", "b CPU s", "b/a CPU")
 	for _, c := range cells {
 		sdir := filepath.Join(dir, fmt.Sprintf("cells%.0f", c))
 		s, err := generate(sdir, c, 2, 20261202)
@@ -52,19 +56,21 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 		}
 		for _, e := range extents {
 			r := row{cells: s.width * s.height, extents: int(e)}
-			r.bare = math.Inf(1)
-			r.run = math.Inf(1)
+			r.bare, r.bareCPU = math.Inf(1), math.Inf(1)
+			r.run, r.runCPU = math.Inf(1), math.Inf(1)
 			r.baseline = math.NaN()
 			for rep := 0; rep < b.reps; rep++ {
+				c0 := ownCPU()
 				t, err := bareRead(s.models)
 				if err != nil {
 					return err
 				}
-				r.bare = math.Min(r.bare, t)
-				t, rss, err := b.fullRun(s, int(e))
+				r.bare, r.bareCPU = math.Min(r.bare, t), math.Min(r.bareCPU, ownCPU()-c0)
+				t, rss, cpu, err := b.fullRun(s, int(e))
 				if err != nil {
 					return err
 				}
+				r.runCPU = math.Min(r.runCPU, cpu)
 				if t < r.run {
 					r.run, r.runRSS = t, rss
 					r.phases = phases(filepath.Join(s.dir, "out", "run.log"))
@@ -79,8 +85,8 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 			}
 			rows = append(rows, r)
 			cps := float64(r.cells) * float64(len(s.models)) / r.run
-			fmt.Printf("%-12d %-8s %-9.2f %-9.2f %-7.1f %-11.2f %-7.1f %-10.0f %-12.3g\n",
-				r.cells, extentsLabel(r), r.bare, r.run, r.run/r.bare, r.baseline, r.baseline/r.run, r.runRSS, cps)
+			fmt.Printf("%-12d %-8s %-9.2f %-9.2f %-7.1f %-11.2f %-7.1f %-10.0f %-12.3g %-9.2f %-9.2f %-9.1f\n",
+				r.cells, extentsLabel(r), r.bare, r.run, r.run/r.bare, r.baseline, r.baseline/r.run, r.runRSS, cps, r.bareCPU, r.runCPU, r.runCPU/r.bareCPU)
 			fmt.Printf("  phases (run.log): %s\n", r.phases)
 		}
 	}
@@ -162,8 +168,8 @@ func bareRead(paths []string) (float64, error) {
 }
 
 // fullRun times `areasweep run` on the study with a family of about n
-// extents and returns seconds and the peak RSS in MiB.
-func (b *bench) fullRun(s *synthetic, n int) (float64, float64, error) {
+// extents and returns seconds, the peak RSS in MiB and CPU seconds.
+func (b *bench) fullRun(s *synthetic, n int) (float64, float64, float64, error) {
 	out := filepath.Join(s.dir, "out")
 	args := []string{"run", "--occurrences", s.occurrences, "--region", s.region,
 		"--e", "0.05,0.1", "--iterations", strconv.Itoa(b.iterations), "--out", out, "--force", "--quiet"}
@@ -175,13 +181,15 @@ func (b *bench) fullRun(s *synthetic, n int) (float64, float64, error) {
 	return b.exec(args)
 }
 
-func (b *bench) exec(args []string) (float64, float64, error) {
+// exec runs the binary with args and returns its wall seconds, peak RSS
+// (MiB) and CPU seconds (user + system, from the child's own rusage).
+func (b *bench) exec(args []string) (float64, float64, float64, error) {
 	cmd := exec.Command(b.bin, args...)
 	var stderr strings.Builder
 	cmd.Stderr = &stderr
 	start := time.Now()
 	if err := cmd.Start(); err != nil {
-		return 0, 0, fmt.Errorf("%s: %w", b.bin, err)
+		return 0, 0, 0, fmt.Errorf("%s: %w", b.bin, err)
 	}
 	// The peak RSS is read from /proc while the run lives: the rusage of
 	// a child started from this (large) process would report this
@@ -209,9 +217,19 @@ func (b *bench) exec(args []string) (float64, float64, error) {
 	close(done)
 	rss := <-peak
 	if err != nil {
-		return 0, 0, fmt.Errorf("%s %s: %w\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
+		return 0, 0, 0, fmt.Errorf("%s %s: %w\n%s", b.bin, strings.Join(args, " "), err, stderr.String())
 	}
-	return t, rss, nil
+	cpu := (cmd.ProcessState.UserTime() + cmd.ProcessState.SystemTime()).Seconds()
+	return t, rss, cpu, nil
+}
+
+// ownCPU returns this process's CPU seconds so far (user + system).
+func ownCPU() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return math.NaN()
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano()).Seconds()
 }
 
 // vmHWM returns the peak resident set size (MiB) of process pid from
@@ -241,7 +259,7 @@ func (b *bench) baselineRun(s *synthetic, n int) (float64, int, error) {
 	args := []string{"extents", "--occurrences", s.occurrences, "--region", s.region,
 		"--model", "m1=" + s.models[0], "--membership-tif", "--out", out, "--force", "--quiet"}
 	args = append(args, familyFlags(n)...)
-	if _, _, err := b.exec(args); err != nil {
+	if _, _, _, err := b.exec(args); err != nil {
 		return 0, 0, err
 	}
 	tests, err := testCells(s)

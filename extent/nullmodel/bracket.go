@@ -7,8 +7,11 @@ import (
 	"areasweep/extent/geodesy"
 )
 
-// Binner places a value in the bins a scoring pass keeps apart (a metrics
-// Layout's exact and fine-histogram bins: *metrics.Layout satisfies it).
+// Binner places a value in the bins a scoring pass keeps apart: a metrics
+// Layout's exact bin and the value's bin on the layout's histogram floor
+// grid, whose edges include every edge of every fine histogram on the
+// layout (metrics.WithHistFloor; the pass's adapter is in
+// cmd/internal/pass).
 // Locate must be monotone: v1 <= v2 implies each returned index of v1 is
 // at most that of v2, so that a value between two values that share their
 // bins shares them too.

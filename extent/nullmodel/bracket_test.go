@@ -9,10 +9,16 @@ import (
 	"areasweep/metrics"
 )
 
-// testLayout returns a layout like a pass's for the null: the values at
-// every 37th cell (as presence values would be) and 4096 fine-histogram
-// bins over [-far, 0].
-func testLayout(t testing.TB, dist []float64, far float64) *metrics.Layout {
+// floorBins is the Binner of a pass on a floored layout: exact bin and
+// floor-grid bin (the pass's own adapter lives in cmd/internal/pass).
+type floorBins struct{ l *metrics.Layout }
+
+func (b floorBins) Locate(v float64) (bin, hist int) { return b.l.Locate(v), int(b.l.FloorBin(v)) }
+
+// testLayout returns the bins of a layout like a pass's for the null: the
+// values at every 37th cell (as presence values would be) and 4096
+// fine-histogram bins floored at the power of two at or below far/4096.
+func testLayout(t testing.TB, dist []float64, far float64) floorBins {
 	t.Helper()
 	var vals []float64
 	for i := 0; i < len(dist); i += 37 {
@@ -20,11 +26,11 @@ func testLayout(t testing.TB, dist []float64, far float64) *metrics.Layout {
 			vals = append(vals, 0-dist[i])
 		}
 	}
-	l, err := metrics.NewLayout(vals, -far, 0, 4096)
+	l, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(metrics.FloorExp(far/4096)))
 	if err != nil {
 		t.Fatal(err)
 	}
-	return l
+	return floorBins{l}
 }
 
 // TestBracketContainsDistance checks Bracket against Distances on
@@ -152,10 +158,11 @@ func BenchmarkFieldBracket(b *testing.B) {
 				_, d := ix.Nearest(north-(math.Floor((north-lats[i])/0.01)+0.5)*0.01, (math.Floor(lons[i]/0.01)+0.5)*0.01, 0)
 				vals = append(vals, -d)
 			}
-			layout, err := metrics.NewLayout(vals, -far, 0, 4096)
+			l, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(metrics.FloorExp(far/4096)))
 			if err != nil {
 				b.Fatal(err)
 			}
+			layout := floorBins{l}
 			lo, hi := make([]float64, 240*240), make([]float64, 240*240)
 			b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
 				b.ReportAllocs()

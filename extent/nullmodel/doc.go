@@ -26,8 +26,9 @@
 // Bracket proves an interval around each cell's distance from a few exact
 // geodesics per block (a second-order bound along the geodesic from an
 // anchor cell, with the Hessian comparison theorem for the ellipsoid) and
-// measures a cell only when its interval straddles a bin edge or is wider
-// than BracketTol; see Bracket.
+// measures a cell only when its interval straddles a bin edge (of the
+// exact bins or of the histogram's floor grid) or is wider than
+// BracketTol; see Bracket.
 //
 // Background gathers, per extent, the area-weighted distribution of those
 // distances, and SortingBias compares it with the test points' distances.

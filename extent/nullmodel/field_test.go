@@ -136,34 +136,6 @@ func TestFillSign(t *testing.T) {
 	}
 }
 
-// TestFarthestBound checks that the bound is at least every cell's distance
-// (brute force over the grid with Nearest) and not far above it.
-func TestFarthestBound(t *testing.T) {
-	lats, lons := clusteredSites(20, 0, 40, 12, 50, 3)
-	ix, err := geodesy.NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
-	cen := lonLatGrid(-5, 55, 0.1)
-	f := New(ix, cen)
-	w, h := 200, 180
-	far := 0.0
-	lo, la := make([]float64, w), make([]float64, w)
-	for r := range h {
-		cen(r, 0, w, lo, la)
-		for c := range w {
-			_, d := ix.Nearest(la[c], lo[c], 0)
-			far = math.Max(far, d)
-		}
-	}
-	for _, step := range []int{1, 16, 64} {
-		b := f.FarthestBound(w, h, step)
-		if b < far || b > far+2*1.02*float64(step)*15e3 {
-			t.Errorf("step %d: bound %.1f m, farthest cell %.1f m", step, b, far)
-		}
-	}
-}
-
 // BenchmarkDistances measures the distance field on a latitude-longitude
 // grid of 0.01-degree cells (about 1 km) with training points in clusters,
 // per block of 256 x 256 cells: the cost of the null model's values in a

@@ -7,18 +7,44 @@
 # file is regenerated on purpose, in the same commit, with the reason in
 # its message.
 #
-# The committed file was first written by this script at commit 84c59ed,
-# before the pipeline moved out of cmd/areasweep (issue 9), and rewritten
-# by it at the merge of issue 11 (the distance-only null's bounded cells:
-# the sorting-bias background is tallied from bracket midpoints and binned
-# on the float's bits, so its means and medians moved by at most 0.03%).
+# It builds the working tree as it is (committed or not) and records which
+# tree that was in a first comment line of demo.sha256: the commit it sits
+# on, whether it had uncommitted changes, and a merge in progress if any.
+#
+# History of the committed file:
+#   - first written at commit 84c59ed, before the pipeline moved out of
+#     cmd/areasweep (issue 9);
+#   - rewritten in the merge of issue13 into main (the fine histogram of
+#     the Boyce index per extent on a dyadic grid of its own range: Boyce
+#     values, and what derives from them, changed; the new sums equal those
+#     of issue13's own build);
+#   - rewritten at the merge of issue 11 (the distance-only null's bounded
+#     cells: the sorting-bias background is tallied from bracket midpoints
+#     and binned on the float's bits, so its means and medians moved by at
+#     most 0.03%);
+#   - rewritten at the merge of issue 13 after issue 11 (the null's fine
+#     histogram floored at the power of two at or below its largest
+#     distance's bound / 4096, so that its bracketed cells can be checked
+#     against every histogram edge before the pass: the null's Boyce
+#     values may move; the models' outputs do not).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
 [ -x /usr/local/go/bin/go ] && export PATH="/usr/local/go/bin:$PATH"
+tree="unknown tree (not a git work tree)"
+if rev="$(git -C "$root" rev-parse --short HEAD 2>/dev/null)"; then
+	tree="the tree of commit $rev"
+	git -C "$root" diff --quiet HEAD -- || tree="$tree with uncommitted changes"
+	if merge="$(git -C "$root" rev-parse --short -q --verify MERGE_HEAD 2>/dev/null)"; then
+		tree="$tree (merge of $merge in progress)"
+	fi
+fi
 tmp="$(mktemp -d)"
 trap 'rm -rf "$tmp"' EXIT
 (cd "$root" && go build -o "$tmp/areasweep" ./cmd/areasweep)
 (cd "$tmp" && ./areasweep demo --out demo --quiet >/dev/null)
-(cd "$tmp/demo" && sha256sum results.json scores.csv) > "$here/demo.sha256"
+{
+	echo "# written by demo_golden.sh from $tree"
+	(cd "$tmp/demo" && sha256sum results.json scores.csv)
+} > "$here/demo.sha256"
 cat "$here/demo.sha256"

@@ -74,7 +74,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layout, err := metrics.NewLayout(vals, -3e6, 0, 4096)
+	layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(DistanceNull(g, ix), g, 4096)))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -192,12 +192,12 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		cells[i] = p.Cell
 	}
 	set := metrics.Settings{Iterations: 1, Seed: 1}
-	evals := func(v *Virtual, lo, hi float64) ([]*metrics.Evaluator, []metrics.Scores) {
+	evals := func(v *Virtual, opts ...metrics.LayoutOption) ([]*metrics.Evaluator, []metrics.Scores) {
 		vals, ok, err := v.Sample(g, cells)
 		if err != nil {
 			t.Fatal(err)
 		}
-		layout, err := metrics.NewLayout(vals, lo, hi, 4096)
+		layout, err := metrics.NewLayout(vals, 4096, opts...)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -227,8 +227,9 @@ func TestNullGoldenModelMinusNull(t *testing.T) {
 		}
 		return evs, scs
 	}
-	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}), 0, 1)
-	null, _ := evals(NewVirtual(g, DistanceNull(g, ix)), -3e6, 0)
+	model, modelScores := evals(NewVirtual(g, cellField{gd.Grid.Width, gd.ModelValue}))
+	nf := DistanceNull(g, ix)
+	null, _ := evals(NewVirtual(g, nf), metrics.WithHistFloor(DistanceNullFloor(nf, g, 4096)))
 	d := metrics.Draws{N: len(cells), B: 20, Seed: 7}
 	for k, e := range gd.Extents {
 		if math.Abs(modelScores[k].AUC-e.ModelAUC) > 1e-9 {

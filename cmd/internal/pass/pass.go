@@ -6,6 +6,7 @@ import (
 	"math"
 	"runtime"
 	"runtime/debug"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -156,7 +157,7 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 }
 
 // ErrNoData is returned when a raster has no cell with data (ExactRange
-// finds no valid value).
+// finds no valid value, or a pass's Stats.AnyValid is false).
 var ErrNoData = errors.New("pass: the raster has no cell with data")
 
 // block is one block of cells read from the raster.
@@ -234,6 +235,9 @@ type Stats struct {
 	FloorArea int64
 	// Area is the area (units) of valid cells in any extent.
 	Area int64
+	// AnyValid is true when some cell of the raster, in an extent or not,
+	// has a value. (A Virtual source computes only cells in some extent.)
+	AnyValid bool
 }
 
 // Merge adds to s the statistics of a pass over other cells (another
@@ -242,11 +246,14 @@ type Stats struct {
 func (s *Stats) Merge(o Stats) { s.merge(o) }
 
 func (s *Stats) merge(o Stats) {
+	anyValid := s.AnyValid || o.AnyValid
+	s.AnyValid = anyValid
 	if o.Area == 0 {
 		return
 	}
 	if s.Area == 0 {
 		*s = o
+		s.AnyValid = anyValid
 		return
 	}
 	switch {
@@ -441,6 +448,9 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 				if sh, ok := src.(shower); ok {
 					b.shown = sh.shownValues(b.w * b.h)
 				}
+				if !st.AnyValid {
+					st.AnyValid = slices.ContainsFunc(b.buf, valid)
+				}
 				scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt)
 				doneBlocks <- struct{}{}
 			}
@@ -488,14 +498,13 @@ type workerState struct {
 	areas   []float64
 	weights []int64
 	bins    []int32 // per column of the block row: layout bin, -1 when not scored
-	hists   []int32
-	in      []bool // per column: in some member
+	in      []bool  // per column: in some member
 	span    extent.SpanScratch
 }
 
 func newWorkerState(bw, bh int) *workerState {
 	return &workerState{buf: make([]float64, bw*bh), weights: make([]int64, bw),
-		bins: make([]int32, bw), hists: make([]int32, bw), in: make([]bool, bw)}
+		bins: make([]int32, bw), in: make([]bool, bw)}
 }
 
 // RowWeights fills weights (length c1-c0) with the integer area units of
@@ -525,7 +534,7 @@ func valid(v float64) bool { return !math.IsNaN(v) }
 func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) {
 	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
-	weights, bins, hists, in := ws.weights[:b.w], ws.bins[:b.w], ws.hists[:b.w], ws.in[:b.w]
+	weights, bins, in := ws.weights[:b.w], ws.bins[:b.w], ws.in[:b.w]
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
 		base := row*g.Width + b.x0
@@ -595,8 +604,7 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 				st.Max = v
 			}
 			st.Area += w
-			bin, hist := layout.Locate(v)
-			bins[x], hists[x] = int32(bin), int32(hist)
+			bins[x] = int32(layout.Locate(v))
 		}
 		if vbits != 0 {
 			validCells.OrAtomic(vword, vbits)
@@ -607,11 +615,8 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 				runs := fam.Span(k, inner, row, b.x0, x1, &ws.span)
 				acc := accs[k]
 				for i := 0; i < len(runs); i += 2 {
-					for x := int(runs[i]) - b.x0; x < int(runs[i+1])-b.x0; x++ {
-						if bin := bins[x]; bin >= 0 {
-							acc.AddLocated(int(bin), int(hists[x]), vals[x], weights[x])
-						}
-					}
+					x0, x1 := int(runs[i])-b.x0, int(runs[i+1])-b.x0
+					acc.AddRow(bins[x0:x1], vals[x0:x1], weights[x0:x1])
 				}
 				inner = k
 			}

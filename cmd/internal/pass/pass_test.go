@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -92,12 +93,13 @@ func TestScoreWorkersAgree(t *testing.T) {
 	g, r := openTestRaster(t, w, h)
 	defer r.Close()
 	fam := fullFamily(g, 3)
-	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
+	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 256)
 	if err != nil {
 		t.Fatal(err)
 	}
 	var scores []metrics.Scores
 	var previews [][]float64
+	var encoded [][]byte
 	for _, workers := range []int{1, 3} {
 		valid := extent.NewValid(g.Cells())
 		pv := NewPreview(g, 50)
@@ -130,9 +132,20 @@ func TestScoreWorkersAgree(t *testing.T) {
 			t.Fatal(err)
 		}
 		scores = append(scores, sc)
+		var enc []byte
+		for _, a := range accs {
+			enc = append(enc, metrics.EncodeAccumulator(a)...)
+		}
+		encoded = append(encoded, enc)
+		if !st.AnyValid {
+			t.Errorf("workers=%d: AnyValid false", workers)
+		}
 	}
 	if fmt.Sprint(scores[0]) != fmt.Sprint(scores[1]) {
 		t.Error("scores differ between 1 and 3 workers")
+	}
+	if !bytes.Equal(encoded[0], encoded[1]) {
+		t.Error("accumulators (fine histograms included) differ between 1 and 3 workers")
 	}
 	if fmt.Sprint(previews[0]) != fmt.Sprint(previews[1]) {
 		t.Error("previews differ between 1 and 3 workers")
@@ -180,7 +193,7 @@ func nestedFamily(g *extent.Grid, n int, chained bool) *extent.Family {
 func TestScoreGroups(t *testing.T) {
 	g, r := openTestRaster(t, 300, 200)
 	defer r.Close()
-	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
+	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 256)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -212,7 +225,7 @@ func TestScoreGroups(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			got = append(got, fmt.Sprint(a.Area(), a.Min(), a.Max(), sc))
+			got = append(got, fmt.Sprint(a.Area(), a.Min(), a.Max(), sc, metrics.EncodeAccumulator(a)))
 		}
 		if ref == nil {
 			ref = got
@@ -233,7 +246,7 @@ func BenchmarkScorePass(b *testing.B) {
 	for i := range vals {
 		vals[i] = float64(i) / 1000
 	}
-	layout, err := metrics.NewLayout(vals, 0, 1, 4096)
+	layout, err := metrics.NewLayout(vals, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -307,5 +320,42 @@ func TestScaleOffset(t *testing.T) {
 		if ok[i] != (i != 2) || ok[i] && math.Abs(vals[i]-want[i]) > 1e-12 {
 			t.Errorf("cell %d: value %v valid %v, want %v valid %v", i, vals[i], ok[i], want[i], i != 2)
 		}
+	}
+}
+
+// TestAnyValid: a pass tells a raster without any cell with data (every
+// cell the nodata value) from one whose data lie outside every extent.
+func TestAnyValid(t *testing.T) {
+	dir := t.TempDir()
+	for _, tc := range []struct {
+		name string
+		data bool // a column of cells with data, outside the extent
+	}{{"all no data", false}, {"data outside the extents", true}} {
+		path := filepath.Join(dir, tc.name+".tif")
+		writeGridRaster(t, path, 300, 200, false, func(r, c int) float32 {
+			if tc.data && c == 299 {
+				return 0.5
+			}
+			return -9999
+		}, "TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64")
+		g, err := extent.OpenGrid(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fam := extent.NewFamilyFromRuns(g, []extent.Member{{ID: "left", Status: vocab.StatusOK}}, func(k, row int) []int32 { return []int32{0, 100} })
+		layout, _ := metrics.NewLayout([]float64{0.5}, 64)
+		_, st, err := r.Score(g, fam, layout, Options{Workers: 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st.AnyValid != tc.data || st.Area != 0 {
+			t.Errorf("%s: AnyValid %v, area %d; want %v, 0", tc.name, st.AnyValid, st.Area, tc.data)
+		}
+		r.Close()
+		g.Close()
 	}
 }

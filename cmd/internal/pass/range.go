@@ -8,9 +8,10 @@ import (
 // ExactRange returns the smallest and largest valid model value of the
 // band (after no-data, scale and offset), read from every block at full
 // resolution. Unlike GDAL's approximate statistics it does not depend on
-// how the file is stored (tiled or striped, with or without overviews), so the fine
-// histogram the Boyce index reads is the same for the same pixels. ok is
-// false when the band has no valid value.
+// how the file is stored (tiled or striped, with or without overviews). ok
+// is false when the band has no valid value. It reads the whole raster:
+// the scoring pass does not need it (the layout needs no value range), so
+// it serves only to explain a run that cannot start.
 func (r *Raster) ExactRange() (lo, hi float64, ok bool, err error) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	st := r.band.Structure()

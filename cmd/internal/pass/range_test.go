@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"bytes"
 	"math"
 	"path/filepath"
 	"testing"
@@ -28,9 +29,11 @@ func writeLayout(tb testing.TB, path string, w, h int, overviews bool, opts ...s
 }
 
 // TestExactRangeLayouts writes the same pixels tiled, striped and tiled
-// with overviews: the exact range, and the Boyce index computed with a
-// histogram over it, must be identical (GDAL's approximate statistics
-// differ between such files because they sample blocks or read overviews).
+// with overviews: the exact range, the accumulator of one pass (byte for
+// byte, fine histogram included) and the Boyce index must be identical
+// (GDAL's approximate statistics differ between such files because they
+// sample blocks or read overviews; neither the pass nor the layout uses
+// them, nor any range read before the pass).
 func TestExactRangeLayouts(t *testing.T) {
 	const w, h = 600, 500
 	dir := t.TempDir()
@@ -46,6 +49,7 @@ func TestExactRangeLayouts(t *testing.T) {
 	type result struct {
 		lo, hi float64
 		boyce  metrics.Boyce
+		acc    []byte
 	}
 	var got []result
 	for _, l := range layouts {
@@ -78,7 +82,7 @@ func TestExactRangeLayouts(t *testing.T) {
 				test = append(test, v)
 			}
 		}
-		layout, err := metrics.NewLayout(test, lo, hi, 4096)
+		layout, err := metrics.NewLayout(test, 4096)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -91,13 +95,16 @@ func TestExactRangeLayouts(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got = append(got, result{lo, hi, sc.Boyce})
+		got = append(got, result{lo, hi, sc.Boyce, metrics.EncodeAccumulator(accs[0])})
 		r.Close()
 		g.Close()
 	}
 	for i := 1; i < len(got); i++ {
 		a, b := got[0], got[i]
-		if a.lo != b.lo || a.hi != b.hi || a.boyce.Index != b.boyce.Index || a.boyce.Defined != b.boyce.Defined || len(a.boyce.Ratio) != len(b.boyce.Ratio) {
+		if !bytes.Equal(a.acc, b.acc) {
+			t.Errorf("%s: accumulator differs from %s's", layouts[i].name, layouts[0].name)
+		}
+		if a.lo != b.lo || a.hi != b.hi || a.boyce.Index != b.boyce.Index || !a.boyce.Defined || a.boyce.Defined != b.boyce.Defined || len(a.boyce.Ratio) != len(b.boyce.Ratio) {
 			t.Errorf("%s differs from %s: %+v vs %+v", layouts[i].name, layouts[0].name, b, a)
 			continue
 		}
@@ -107,4 +114,19 @@ func TestExactRangeLayouts(t *testing.T) {
 			}
 		}
 	}
+}
+
+// BenchmarkExactRange measures the whole-raster range read (one goroutine)
+// on the 2000 x 2000 raster of BenchmarkScorePass: the read a model's
+// pass no longer needs before it.
+func BenchmarkExactRange(b *testing.B) {
+	_, r := openTestRaster(b, 2000, 2000)
+	defer r.Close()
+	b.ReportAllocs()
+	for i := 0; i < b.N; i++ {
+		if _, _, ok, err := r.ExactRange(); err != nil || !ok {
+			b.Fatal(ok, err)
+		}
+	}
+	b.ReportMetric(float64(2000*2000)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
 }

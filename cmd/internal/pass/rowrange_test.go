@@ -54,11 +54,11 @@ func TestRowRangesAddUp(t *testing.T) {
 	g, v, _, fam := nullSetup(t)
 	_, r := openTestRaster(t, 300, 200)
 	defer r.Close()
-	rasterLayout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 0, 1, 256)
+	rasterLayout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 256)
 	if err != nil {
 		t.Fatal(err)
 	}
-	nullLayout, err := metrics.NewLayout([]float64{-1e4, -5e4}, -4e5, 0, 64)
+	nullLayout, err := metrics.NewLayout([]float64{-1e4, -5e4}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -20,9 +20,29 @@ type Field interface {
 	Fill(x0, y0, w, h int, need []uint64, dst []float64)
 }
 
-// Binner places a value in a layout's bins (*metrics.Layout).
+// Binner places a value in the bins a pass keeps apart: its exact bin and
+// its histogram bin (floorBinner on a floored *metrics.Layout).
 type Binner = interface {
 	Locate(v float64) (bin, hist int)
+}
+
+// floorBinner is the Binner of a layout with a histogram floor e
+// (metrics.WithHistFloor): the exact bin of v and its bin on the floor
+// grid, floor(v * 2^-e).
+//
+// Why this is enough although each accumulator chooses its histogram grid
+// from its own cells during the pass: every accumulator on the layout uses
+// a dyadic grid of exponent e' >= e, whose bin of v is FloorBin(v) >>
+// (e'-e); the edges of every coarser grid are a subset of the floor grid's
+// edges (multiples of 2^e' are multiples of 2^e). So when the two ends of
+// a cell's bounds have the same exact bin and the same floor bin, so do
+// the midpoint and the exact value (bins are intervals), in every
+// accumulator at every level it may reach.
+type floorBinner struct{ l *metrics.Layout }
+
+// Locate returns the exact bin of v and its floor-grid bin.
+func (b floorBinner) Locate(v float64) (bin, hist int) {
+	return b.l.Locate(v), int(b.l.FloorBin(v))
 }
 
 // BoundedField is a Field that can bound its values instead of computing
@@ -48,10 +68,13 @@ const VirtualBlock = 240
 // computing a block instead of reading it. Only cells that belong to some
 // extent are computed.
 //
-// For a BoundedField the block's values are the midpoints of the bounds,
-// not the values themselves, chosen so that every accumulator is what the
-// exact values give: a midpoint lies in its value's exact and histogram
-// bins (bins are intervals), and within each block, for every member that
+// For a BoundedField on a layout with a histogram floor (the histogram
+// edges are then known before the pass, see floorBinner) the block's
+// values are the midpoints of the bounds, not the values themselves,
+// chosen so that every accumulator is what the exact values give: a
+// midpoint lies in its value's exact bin and, at every histogram level an
+// accumulator may use, in its histogram bin (bins are intervals whose
+// edges are floor-grid edges), and within each block, for every member that
 // a cell is added to (the smallest member of each nested group holding
 // it), every cell whose bounds reach the block's smallest upper bound
 // (largest lower bound) is computed exactly with Fill. Then the block's
@@ -61,7 +84,9 @@ const VirtualBlock = 240
 // the midpoints of each cell's own bounds (exact where the bounds are),
 // not the values exactExtremes computed: those cells depend on the block,
 // so a pass over a range of rows (a shard) would show other values than
-// a pass over every row; the bounds depend on the cell alone.
+// a pass over every row; the bounds depend on the cell alone. On a layout
+// without a floor every cell is computed with Fill, since the histogram
+// edges the bounds would have to avoid are not known before the pass.
 type Virtual struct {
 	g     *extent.Grid
 	field Field
@@ -236,10 +261,13 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		outer[i] = seq[len(seq)-1]
 	}
 	bf, _ := v.field.(BoundedField)
+	if _, floored := layout.HistFloor(); !floored {
+		bf = nil // histogram edges unknown before the pass: compute every cell
+	}
 	open := func() (Source, error) {
 		src := &virtualSource{v: v, fam: fam, groups: groups, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}
 		if bf != nil {
-			src.bf, src.bins = bf, layout
+			src.bf, src.bins = bf, floorBinner{layout}
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
 			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
@@ -292,4 +320,22 @@ func DistanceNull(g *extent.Grid, ix *geodesy.Index) *nullmodel.Field {
 		return nullmodel.NewLonLat(ix, gt[0], gt[1], gt[3], gt[5])
 	}
 	return nullmodel.New(ix, CellCentres(g))
+}
+
+// farthestStep is the tile side (cells) of the one-query-per-tile bound on
+// the null's largest distance (nullmodel.Field.FarthestBound).
+const farthestStep = 64
+
+// DistanceNullFloor returns the histogram floor exponent of the
+// distance-only null's layout (metrics.WithHistFloor): that of the power
+// of two at or below far/histBins, far an upper bound on the null's
+// largest distance on g (FarthestBound, at least 1 m). Its histograms are
+// then never finer than bins of far/(2*histBins), and a cell's bounds need
+// only avoid the multiples of 2^floor (about histBins to 2*histBins edges
+// over [-far, 0]) to be scored without computing it (see floorBinner). The
+// floor depends on the training sites and the grid alone, so every shard
+// of a run finds the same one.
+func DistanceNullFloor(f *nullmodel.Field, g *extent.Grid, histBins int) int {
+	far := math.Max(f.FarthestBound(g.Width, g.Height, farthestStep), 1)
+	return metrics.FloorExp(far / float64(histBins))
 }

@@ -116,14 +116,16 @@ func TestVirtualEqualsRaster(t *testing.T) {
 			t.Errorf("cell %d: virtual %v (%v), raster %v (%v), field %v", cells[i], vv[i], vok[i], rv[i], rok[i], all[cells[i]])
 		}
 	}
-	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), -4e5, 0, 256)
+	// The floor of bins about 4e5/256 m wide (the largest distance is below
+	// 4e5 m): the histogram edges the bounds must avoid.
+	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), 256, metrics.WithHistFloor(metrics.FloorExp(4e5/256)))
 	if err != nil {
 		t.Fatal(err)
 	}
 	// Most cells must take the bounded path (midpoints), or this test
 	// would not test it.
 	lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
-	f.Bounds(0, 0, g.Width, g.Height, nil, layout, lo, hi)
+	f.Bounds(0, 0, g.Width, g.Height, nil, floorBinner{layout}, lo, hi)
 	bounded := 0
 	for i := range lo {
 		if lo[i] != hi[i] {
@@ -180,7 +182,7 @@ func TestVirtualEqualsRaster(t *testing.T) {
 // valid cells (Family.Has) gives each accumulator's area.
 func TestRowsHook(t *testing.T) {
 	g, v, _, fam := nullSetup(t)
-	layout, err := metrics.NewLayout([]float64{-1e4}, -4e5, 0, 64)
+	layout, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -225,7 +227,7 @@ func TestRowsHook(t *testing.T) {
 // latitude-longitude window in 4 million cells (27 million in
 // BenchmarkNullVsRaster), 500 training and 500 test
 // points drawn from a bump of suitability, 8 extents, the layout of the
-// points' values and a 4096-bin histogram over [-FarthestBound, 0]. Set
+// points' values and 4096-bin histograms floored at DistanceNullFloor. Set
 // beside BenchmarkScorePass (a raster of the same size, 8 extents, same
 // worker count): ns per cell.
 func BenchmarkNullPass(b *testing.B) {
@@ -279,7 +281,7 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 		pc = append(pc, row*w+c)
 	}
 	vals, _, _ := v.Sample(g, pc)
-	layout, err := metrics.NewLayout(vals, -f.FarthestBound(w, h, 64), 0, 4096)
+	layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(f, g, 4096)))
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -316,13 +318,13 @@ func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) fun
 }
 
 // mustLayout returns a layout of 1000 values evenly spread over [lo, hi]
-// with 4096 histogram bins on that range.
+// with 4096 histogram bins.
 func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
 	vals := make([]float64, 1000)
 	for i := range vals {
 		vals[i] = lo + (hi-lo)*float64(i)/1000
 	}
-	l, err := metrics.NewLayout(vals, lo, hi, 4096)
+	l, err := metrics.NewLayout(vals, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -415,7 +417,7 @@ func (panicField) Fill(x0, y0, w, h int, need []uint64, dst []float64) {
 // instead of killing the process or hanging the other workers.
 func TestWorkerPanicIsInternalError(t *testing.T) {
 	g, _, _, fam := nullSetup(t)
-	layout, err := metrics.NewLayout([]float64{3}, 0, 7, 64)
+	layout, err := metrics.NewLayout([]float64{3}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -53,14 +53,11 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if err != nil {
 		return nil, err
 	}
-	merged, first, err := readShards(files)
+	merged, first, err := readShards(files, mo.Version)
 	if err != nil {
 		return nil, err
 	}
 	readTime := time.Since(t0)
-	if first.Tool != mo.Version {
-		return nil, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", first.Source, first.Tool, mo.Version))
-	}
 	var rec recordedRun
 	dec := json.NewDecoder(strings.NewReader(string(merged.Run)))
 	dec.DisallowUnknownFields()
@@ -129,9 +126,11 @@ func globEscape(s string) string {
 }
 
 // readShards reads the files twice: first every header, for
-// metrics.CheckShardSet, then each file's content, decoded and merged one
-// file at a time. It returns the merged content and the first header.
-func readShards(files []string) (*shardfile.Merged, metrics.ShardHeader, error) {
+// metrics.CheckShardSet and the areasweep version (that of this build, so
+// that shards of another version are named as such before their content is
+// decoded), then each file's content, decoded and merged one file at a
+// time. It returns the merged content and the first header.
+func readShards(files []string, version string) (*shardfile.Merged, metrics.ShardHeader, error) {
 	var headers []metrics.ShardHeader
 	read := func(f string) ([]byte, error) {
 		data, err := os.ReadFile(f)
@@ -156,6 +155,9 @@ func readShards(files []string) (*shardfile.Merged, metrics.ShardHeader, error) 
 			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
 		}
 		return nil, metrics.ShardHeader{}, fault.BadInput(err)
+	}
+	if h := headers[0]; h.Tool != version {
+		return nil, metrics.ShardHeader{}, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", h.Source, h.Tool, version))
 	}
 	// Shard 1's recorded run is the one used: shards may differ in paths
 	// (other folders or machines) but not in inputs or settings.
@@ -183,8 +185,9 @@ func readShards(files []string) (*shardfile.Merged, metrics.ShardHeader, error) 
 
 // useShards makes every pass of s take its sums from merged instead of
 // reading its model, after checking that the prepared run is the shards'
-// run: the same grid and extents; the value ranges come from the shards
-// too, so no raster is read in full.
+// run: the same grid and extents. A pass's plan reads only its model's
+// values at the points (the layout needs no value range), so no raster is
+// read in full.
 func (s *Study) useShards(merged *shardfile.Merged) error {
 	if merged.Width != s.grid.Width || merged.Height != s.grid.Height {
 		return fault.BadInput(fmt.Errorf("the shards were made on a %d x %d grid, the inputs give %d x %d", merged.Width, merged.Height, s.grid.Width, s.grid.Height))
@@ -198,11 +201,9 @@ func (s *Study) useShards(merged *shardfile.Merged) error {
 		}
 	}
 	byName := map[string]*shardfile.Pass{}
-	s.ranges = map[string][2]float64{}
 	for i := range merged.Passes {
 		p := &merged.Passes[i]
 		byName[p.Name] = p
-		s.ranges[p.Name] = [2]float64{p.Lo, p.Hi}
 	}
 	s.SetSums(func(s *Study, ctx context.Context, p *Plan) (*Sums, error) {
 		mp := byName[p.Model.Name]

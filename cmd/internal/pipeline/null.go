@@ -2,7 +2,6 @@ package pipeline
 
 import (
 	"fmt"
-	"math"
 	"sync"
 	"time"
 
@@ -11,12 +10,9 @@ import (
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 	"areasweep/report"
 )
-
-// farthestStep is the tile side (cells) of the one-query-per-tile bound on
-// the null's largest distance, which sets the range of its fine histogram.
-const farthestStep = 64
 
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
@@ -83,15 +79,10 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		}
 	}
 	p := &Plan{Index: i, Model: s.Passes()[i], src: pass.NewVirtual(g, field), rows: rows, null: dn}
-	// The fine histogram (Boyce) spans [-far, 0]: fixed by the training
-	// points and the grid alone, so the same inputs give the same null
-	// Boyce index (the null has no file layout). An exact range would cost
-	// a second distance pass; a GeoTIFF copy of the null spans its exact
-	// range instead, so only its Boyce index may differ.
-	lo, hi, _, _ := s.valueRange(report.DistanceNullName, func() (float64, float64, bool, error) {
-		return -math.Max(field.FarthestBound(g.Width, g.Height, farthestStep), 1), 0, true, nil
-	})
-	if err := s.layout(p, lo, hi); err != nil {
+	// The null's fine histogram (Boyce) never goes below the floor grid of
+	// about far/histBins, so the bounds of a cell can be checked against
+	// every histogram edge before the pass (pass.DistanceNullFloor).
+	if err := s.layout(p, metrics.WithHistFloor(pass.DistanceNullFloor(field, g, histBins))); err != nil {
 		return nil, err
 	}
 	return p, nil

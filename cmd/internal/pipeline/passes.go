@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -45,6 +44,11 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 	sums, err := s.sums(s, ctx, p)
 	if err != nil {
 		return err
+	}
+	if !sums.Stats.AnyValid && p.Model.NullKind != report.NullDistance {
+		// Found by the pass itself (in a merge, by every shard's rows
+		// together): no read before the pass looks for it.
+		return fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", p.Model.Name, pass.ErrNoData, p.Model.Path))
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
 		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
@@ -116,10 +120,10 @@ type Source interface {
 }
 
 // Plan prepares pass i: opens its source, reads its values at the points
-// and sets the layout (presence values and fixed thresholds; the fine
-// histogram over the exact value range widened to the point values). It
-// returns nil, nil for a pass that is skipped (the distance-only null
-// without training points, with a warning).
+// and sets the layout (presence values and fixed thresholds; no value
+// range: each extent's fine histogram follows its own cells, so no model
+// is read before its pass). It returns nil, nil for a pass that is skipped
+// (the distance-only null without training points, with a warning).
 func (s *Study) Plan(i int) (*Plan, error) {
 	if i < len(s.models) {
 		return s.planModel(i, s.models[i])
@@ -127,47 +131,24 @@ func (s *Study) Plan(i int) (*Plan, error) {
 	return s.planDistanceNull(i)
 }
 
-// planModel opens model m's raster and reads its exact value range.
+// planModel opens model m's raster and sets its layout.
 func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 	r, err := pass.Open(m.Path)
 	if err != nil {
 		return nil, fault.BadInput(err)
 	}
-	// The fine histogram (Boyce) spans the exact value range, so that the
-	// same pixels give the same index whatever the file layout.
-	lo, hi, ok, err := s.valueRange(m.Name, r.ExactRange)
-	if err != nil {
-		r.Close()
-		return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
-	}
-	if !ok {
-		r.Close()
-		return nil, fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", m.Name, pass.ErrNoData, m.Path))
-	}
 	p := &Plan{Index: i, Model: s.Passes()[i], src: r, close: func() { r.Close() }}
-	if err := s.layout(p, lo, hi); err != nil {
+	if err := s.layout(p); err != nil {
 		p.Close()
 		return nil, err
 	}
 	return p, nil
 }
 
-// valueRange returns the value range of the pass of model name: the one
-// known already (Study.ranges, a merge's), or exact() (a full read).
-func (s *Study) valueRange(name string, exact func() (lo, hi float64, ok bool, err error)) (lo, hi float64, ok bool, err error) {
-	if r, known := s.ranges[name]; known {
-		return r[0], r[1], true, nil
-	}
-	t0 := time.Now()
-	lo, hi, ok, err = exact()
-	s.logf("%s: value range found in %.2f s", name, time.Since(t0).Seconds())
-	return lo, hi, ok, err
-}
-
 // layout samples p's source at the points and sets p.Layout: its bins at
-// the scored points' values and the fixed thresholds, its fine histogram
-// over [lo, hi] widened to them.
-func (s *Study) layout(p *Plan, lo, hi float64) error {
+// the scored points' values and the fixed thresholds, with opts (the
+// distance-only null's histogram floor).
+func (s *Study) layout(p *Plan, opts ...metrics.LayoutOption) error {
 	m := p.Model
 	vals, valid, err := p.src.Sample(s.grid, s.cell)
 	if err != nil {
@@ -190,17 +171,8 @@ func (s *Study) layout(p *Plan, lo, hi float64) error {
 		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
 	}
 	layoutVals = append(layoutVals, s.o.Thresholds...)
-	for _, v := range layoutVals {
-		lo, hi = math.Min(lo, v), math.Max(hi, v)
-	}
-	if !(hi > lo) {
-		hi = lo + 1
-	}
-	p.Layout, err = metrics.NewLayout(layoutVals, lo, hi, histBins)
+	p.Layout, err = metrics.NewLayout(layoutVals, histBins, opts...)
 	if err != nil {
-		if !finiteRange(lo, hi) {
-			return fault.BadInput(fmt.Errorf("model %s (%s): its values run from %g to %g, a range too wide to bin; check the file's values and nodata setting (gdalinfo -stats)", m.Name, m.Path, lo, hi))
-		}
 		return fault.Internal(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	return nil

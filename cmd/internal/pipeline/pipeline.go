@@ -86,10 +86,6 @@ type Study struct {
 	sums SumsFunc
 	// rows, when set, restricts Stream to those grid rows (a shard's).
 	rows *pass.RowRange
-	// ranges, when set, gives the passes' value ranges by model name, so
-	// that Plan reads no raster in full (a merge takes them from the
-	// shards).
-	ranges map[string][2]float64
 }
 
 // Prepare checks the inputs, reads the grid and the points, opens the

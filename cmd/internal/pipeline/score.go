@@ -164,10 +164,6 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	return nil
 }
 
-func finiteRange(lo, hi float64) bool {
-	return !math.IsInf(lo, 0) && !math.IsInf(hi, 0) && !math.IsNaN(lo) && !math.IsNaN(hi) && !math.IsInf(hi-lo, 0)
-}
-
 func firstRatio(sc report.Score) string {
 	if len(sc.PartialROC) == 0 || !sc.PartialROC[0].Defined {
 		return "undefined"

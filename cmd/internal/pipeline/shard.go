@@ -191,8 +191,7 @@ func (s *Study) shardPass(ctx context.Context, k int, sh *shardfile.Shard) error
 		sh.Preview = shardfile.PreviewCells(sums.Preview)
 		s.timed("family clipped as far as the shard's rows tell", func() error { s.shardClip(sums.Valid); return nil })
 	}
-	lo, hi := p.Layout.HistRange()
-	sh.Passes = append(sh.Passes, shardfile.Pass{Name: p.Model.Name, Lo: lo, Hi: hi, Layout: p.Layout, Accs: sums.Accs, Stats: sums.Stats})
+	sh.Passes = append(sh.Passes, shardfile.Pass{Name: p.Model.Name, Layout: p.Layout, Accs: sums.Accs, Stats: sums.Stats})
 	if p.null != nil {
 		sh.Background = &p.null.bg
 	}

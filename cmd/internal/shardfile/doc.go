@@ -17,9 +17,12 @@
 //   - Valid: the first model's valid cells in the shard's rows that lie in
 //     some extent, as column runs per row (the family is clipped to them);
 //   - per pass (each model, each user null, the distance-only null): the
-//     value range its layout was made from, the layout, one accumulator per
-//     family member (empty ones omitted) and the pass statistics
-//     (pass.Stats);
+//     layout (the model's values at the points and the fixed thresholds;
+//     it has no value range, so a shard reads only its own rows of each
+//     model), one accumulator per family member (empty ones omitted; each
+//     holds its fine histogram on the dyadic grid of its own cells' range,
+//     so shards' histograms merge exactly) and the pass statistics
+//     (pass.Stats, with whether any cell of the shard's rows has data);
 //   - the coarse preview values of the first model in the shard's rows;
 //   - the distance-only null's sorting-bias background
 //     (nullmodel.Background), when the run has that null;

@@ -21,8 +21,8 @@ type Merged struct {
 	// Preview holds the preview values (NaN where no shard set one).
 	PreviewWidth, PreviewHeight int
 	Preview                     []float64
-	// Passes hold, per pass, the merged accumulators and statistics (Lo,
-	// Hi and Layout of the first shard, which every shard must match).
+	// Passes hold, per pass, the merged accumulators and statistics (the
+	// Layout of the first shard, which every shard must match).
 	Passes []Pass
 	// Background is the merged sorting-bias tally, nil without the null.
 	Background *nullmodel.Background
@@ -51,7 +51,7 @@ func (m *Merged) Add(s *Shard) error {
 		}
 		m.Run = s.Run
 		for _, p := range s.Passes {
-			q := Pass{Name: p.Name, Lo: p.Lo, Hi: p.Hi, Layout: p.Layout}
+			q := Pass{Name: p.Name, Layout: p.Layout}
 			for range p.Accs {
 				q.Accs = append(q.Accs, p.Layout.NewAccumulator())
 			}
@@ -75,9 +75,8 @@ func (m *Merged) Add(s *Shard) error {
 	}
 	for i, p := range s.Passes {
 		q := &m.Passes[i]
-		if p.Name != q.Name || math.Float64bits(p.Lo) != math.Float64bits(q.Lo) || math.Float64bits(p.Hi) != math.Float64bits(q.Hi) ||
-			p.Layout.Fingerprint() != q.Layout.Fingerprint() || len(p.Accs) != len(q.Accs) {
-			return bad("pass %d (%s) differs from the first shard's (%s): name, value range or layout", i+1, p.Name, q.Name)
+		if p.Name != q.Name || p.Layout.Fingerprint() != q.Layout.Fingerprint() || len(p.Accs) != len(q.Accs) {
+			return bad("pass %d (%s) differs from the first shard's (%s): name or layout", i+1, p.Name, q.Name)
 		}
 		for k, a := range p.Accs {
 			// Bring the accumulator onto the merged layout object (same

@@ -19,15 +19,15 @@ import (
 type Pass struct {
 	// Name is the model's name.
 	Name string
-	// Lo and Hi are the value range the run gave the layout (the exact
-	// raster range, or the null's distance bound), before the point values
-	// widened it: a merge makes the layout again from them.
-	Lo, Hi float64
-	// Layout is the layout the accumulators were made on.
+	// Layout is the layout the accumulators were made on: the model's
+	// values at the points and the fixed thresholds, with no value range,
+	// so every shard makes the same one without reading the raster.
 	Layout *metrics.Layout
-	// Accs holds one accumulator per family member, on Layout.
+	// Accs holds one accumulator per family member, on Layout; each fine
+	// histogram sits on the dyadic grid of its own cells' range.
 	Accs []*metrics.Accumulator
-	// Stats are the pass statistics over the shard's rows.
+	// Stats are the pass statistics over the shard's rows (AnyValid: some
+	// cell of those rows has data).
 	Stats pass.Stats
 }
 
@@ -130,9 +130,6 @@ type meta struct {
 
 type passMeta struct {
 	Name string `json:"name"`
-	// Lo and Hi as float64 bit patterns, so that they come back exactly.
-	Lo uint64 `json:"lo_bits"`
-	Hi uint64 `json:"hi_bits"`
 }
 
 // Section names.
@@ -152,7 +149,7 @@ func accSection(p, k int) string            { return passSection(p, "acc/"+strco
 func Encode(s *Shard) ([]byte, error) {
 	m := meta{Width: s.Width, Height: s.Height, Members: s.Members, PreviewWidth: s.PreviewWidth, PreviewHeight: s.PreviewHeight, Background: s.Background != nil}
 	for _, p := range s.Passes {
-		m.Passes = append(m.Passes, passMeta{Name: p.Name, Lo: math.Float64bits(p.Lo), Hi: math.Float64bits(p.Hi)})
+		m.Passes = append(m.Passes, passMeta{Name: p.Name})
 	}
 	mj, err := json.Marshal(m)
 	if err != nil {
@@ -241,7 +238,7 @@ func Decode(data []byte, source string) (*Shard, error) {
 		return nil, bad("preview: %v", err)
 	}
 	for i, pm := range m.Passes {
-		p := Pass{Name: pm.Name, Lo: math.Float64frombits(pm.Lo), Hi: math.Float64frombits(pm.Hi)}
+		p := Pass{Name: pm.Name}
 		if d, err = section(passSection(i, "layout")); err != nil {
 			return nil, err
 		}
@@ -365,25 +362,35 @@ func decodePreview(b []byte, size int) ([]PreviewCell, error) {
 	return out, nil
 }
 
-// encodeStats writes Min and Max (float64 bits), FloorArea and Area.
+// encodeStats writes Min and Max (float64 bits), FloorArea, Area and
+// AnyValid (uint64 0 or 1).
 func encodeStats(st pass.Stats) []byte {
 	b := binary.LittleEndian.AppendUint64(nil, math.Float64bits(st.Min))
 	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(st.Max))
 	b = binary.LittleEndian.AppendUint64(b, uint64(st.FloorArea))
-	return binary.LittleEndian.AppendUint64(b, uint64(st.Area))
+	b = binary.LittleEndian.AppendUint64(b, uint64(st.Area))
+	var flag uint64
+	if st.AnyValid {
+		flag = 1
+	}
+	return binary.LittleEndian.AppendUint64(b, flag)
 }
 
 func decodeStats(b []byte) (pass.Stats, error) {
-	if len(b) != 32 {
-		return pass.Stats{}, fmt.Errorf("%d bytes, want 32", len(b))
+	if len(b) != 40 {
+		return pass.Stats{}, fmt.Errorf("%d bytes, want 40", len(b))
 	}
 	st := pass.Stats{Min: math.Float64frombits(binary.LittleEndian.Uint64(b)), Max: math.Float64frombits(binary.LittleEndian.Uint64(b[8:])),
 		FloorArea: int64(binary.LittleEndian.Uint64(b[16:])), Area: int64(binary.LittleEndian.Uint64(b[24:]))}
+	anyValid := binary.LittleEndian.Uint64(b[32:])
+	st.AnyValid = anyValid == 1
 	switch {
 	case st.Area < 0 || st.FloorArea < 0 || st.FloorArea > st.Area:
 		return st, fmt.Errorf("areas %d (floor %d) are impossible", st.Area, st.FloorArea)
 	case st.Area > 0 && !(st.Min <= st.Max):
 		return st, fmt.Errorf("range [%v, %v] is impossible", st.Min, st.Max)
+	case anyValid > 1 || (st.Area > 0 && !st.AnyValid):
+		return st, fmt.Errorf("flag of a cell with data is %d with area %d: impossible", anyValid, st.Area)
 	}
 	return st, nil
 }

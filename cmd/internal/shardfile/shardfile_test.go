@@ -50,7 +50,7 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 		Run: []byte(`{"any":"json"}`), Width: gw, Height: gh, Members: members, PreviewWidth: 5, PreviewHeight: 4, Background: &nullmodel.Background{}}
 	valid := extent.NewValid(gw * gh)
 	for p, l := range layouts {
-		ps := Pass{Name: fmt.Sprint("m", p), Lo: 0, Hi: 1, Layout: l}
+		ps := Pass{Name: fmt.Sprint("m", p), Layout: l}
 		for range members {
 			ps.Accs = append(ps.Accs, l.NewAccumulator())
 		}
@@ -63,7 +63,7 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 				}
 				w := int64(1000 + row)
 				var st pass.Stats
-				st.Min, st.Max, st.Area, st.FloorArea = v, v, w, w
+				st.Min, st.Max, st.Area, st.FloorArea, st.AnyValid = v, v, w, w, true
 				ps.Stats.Merge(st)
 				for k := range members {
 					if inMember(k, cell) {
@@ -92,7 +92,7 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 func testLayouts(t *testing.T) []*metrics.Layout {
 	var out []*metrics.Layout
 	for _, vals := range [][]float64{{0.25, 0.5, 0.9}, {0.1, 0.775}} {
-		l, err := metrics.NewLayout(vals, 0, 1, 64)
+		l, err := metrics.NewLayout(vals, 64)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -181,6 +181,7 @@ func TestDecodeRefuses(t *testing.T) {
 		"preview":        func(b []byte) []byte { return append(b, 1) },
 		"pass/0/layout":  func(b []byte) []byte { b[8] ^= 1; return b },
 		"pass/1/stats":   func(b []byte) []byte { b[31] = 0x80; return b },
+		"pass/0/stats":   func(b []byte) []byte { b[32] = 0; return b }, // area but no cell with data
 		"pass/0/acc/1":   func(b []byte) []byte { b[50] ^= 1; return b },
 		"background":     func(b []byte) []byte { return b[:20] },
 		"missing run":    nil,
@@ -219,7 +220,7 @@ func TestDecodeRefuses(t *testing.T) {
 // disagree are refused by Add, naming the odd shard.
 func TestMergedRefusesOtherRuns(t *testing.T) {
 	layouts := testLayouts(t)
-	other, err := metrics.NewLayout([]float64{0.25, 0.5, 0.95}, 0, 1, 64)
+	other, err := metrics.NewLayout([]float64{0.25, 0.5, 0.95}, 64)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -244,8 +245,8 @@ func TestMergedRefusesOtherRuns(t *testing.T) {
 // changed behind a valid envelope. It must never panic, and what it
 // accepts must encode, decode again and encode to the same bytes.
 func FuzzDecode(f *testing.F) {
-	l1, _ := metrics.NewLayout([]float64{0.25, 0.5, 0.9}, 0, 1, 64)
-	l2, _ := metrics.NewLayout([]float64{0.1, 0.775}, 0, 1, 64)
+	l1, _ := metrics.NewLayout([]float64{0.25, 0.5, 0.9}, 64)
+	l2, _ := metrics.NewLayout([]float64{0.1, 0.775}, 64)
 	for _, n := range []int{1, 3} {
 		s := shardOf(&testing.T{}, 1, n, 5, []*metrics.Layout{l1, l2})
 		data, err := Encode(s)
@@ -301,7 +302,7 @@ func BenchmarkDecodeMerge(b *testing.B) {
 	for i := range vals {
 		vals[i] = float64(i) / 1000
 	}
-	l, err := metrics.NewLayout(vals, 0, 1, 4096)
+	l, err := metrics.NewLayout(vals, 4096)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -315,7 +316,7 @@ func BenchmarkDecodeMerge(b *testing.B) {
 			Run: []byte(`{}`), Width: 500, Height: 400, Members: ids, PreviewWidth: 1, PreviewHeight: 1}
 		rng := rand.New(rand.NewPCG(uint64(i), 3))
 		for p := range 3 {
-			ps := Pass{Name: fmt.Sprint("m", p), Hi: 1, Layout: l}
+			ps := Pass{Name: fmt.Sprint("m", p), Layout: l}
 			for range ids {
 				a := l.NewAccumulator()
 				for range 20000 {

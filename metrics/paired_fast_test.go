@@ -1,0 +1,187 @@
+package metrics
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"testing"
+)
+
+// evalReference is Evaluator.eval as it was written before the fast path
+// (fresh slices per call, the Boyce index through boyceIndex and
+// Spearman): the fast path must give the same bits.
+func (e *Evaluator) evalReference(count []int32) Values {
+	var out Values
+	out.Ratio = make([]float64, len(e.es))
+	out.RatioOK = make([]bool, len(e.es))
+	out.Omission = make([]float64, len(e.below))
+	r := 0
+	for _, c := range count {
+		r += int(c)
+	}
+	out.N = r
+	if r == 0 {
+		return out
+	}
+	rf := float64(r)
+	var sa, su float64
+	groups := make([]int, len(e.p.j))
+	for k, c := range count {
+		if c == 0 {
+			continue
+		}
+		sa += float64(c) * e.v[k]
+		su += float64(c) * e.vu[k]
+		groups[e.group[k]] += int(c)
+	}
+	out.AUC, out.AUCUnweighted = sa/rf, su/rf
+	for i, ev := range e.es {
+		pr := e.p.partialArea(groups, r, ev)
+		if pr.how == crossFormed {
+			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
+		}
+	}
+	for t, b := range e.below {
+		om := 0
+		for k, c := range count {
+			if b[k] {
+				om += int(c)
+			}
+		}
+		out.Omission[t] = float64(om) / rf
+	}
+	if len(e.win) >= 3 {
+		diff := make([]int, len(e.win)+1)
+		for k, c := range count {
+			if c == 0 || e.first[k] > e.last[k] {
+				continue
+			}
+			diff[e.first[k]] += int(c)
+			diff[e.last[k]+1] -= int(c)
+		}
+		ratio := make([]float64, len(e.win))
+		mid := make([]float64, len(e.win))
+		run := 0
+		for w, bw := range e.win {
+			run += diff[w]
+			ratio[w] = (float64(run) / rf) / bw.share
+			mid[w] = bw.mid
+		}
+		out.Boyce, out.BoyceOK, _ = boyceIndex(ratio, mid)
+	}
+	return out
+}
+
+// TestAverageRanksInto: the sort-and-search ranks equal Ranks' on
+// values with many ties, few ties and none, zeros, and (through the
+// fallback) a negative value.
+func TestAverageRanksInto(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	var sc evalScratch
+	for trial := 0; trial < 500; trial++ {
+		n := 1 + r.IntN(120)
+		levels := 1 + r.IntN(2*n)
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = float64(r.IntN(levels)) / 7
+		}
+		switch trial % 5 {
+		case 0:
+			v[0] = 0 // zeros among positives
+		case 1:
+			v[0] = -v[0] - 1 // a negative value: the fallback
+		}
+		if got, want := averageRanksInto(v, &sc), ranksOf(v); !reflect.DeepEqual(got, want) {
+			t.Fatalf("ranks of %v: %v, want %v", v, got, want)
+		}
+	}
+}
+
+// TestEvalFastPath: evalInto with reused memory, and BootSD's AUC-only
+// loop, give bit for bit what the reference eval gives, on resamples
+// (many ties among the Boyce ratios) of evaluators with few and many
+// presences.
+func TestEvalFastPath(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	for _, n := range []int{3, 12, 150} {
+		t.Run(fmt.Sprintf("presences=%d", n), func(t *testing.T) {
+			test := make([]float64, n)
+			ids := make([]int, n)
+			for i := range test {
+				test[i] = math.Round(r.Float64()*40) / 40
+				ids[i] = i
+			}
+			l, err := NewLayout(test, 256)
+			if err != nil {
+				t.Fatal(err)
+			}
+			a := l.NewAccumulator()
+			for i := 0; i < 4000; i++ {
+				a.Add(r.Float64(), int64(1+r.IntN(9)))
+			}
+			ev, err := NewEvaluator(a, test, ids, []float64{test[0]}, Settings{E: []float64{0.05, 0.3}, BoyceSteps: 30})
+			if err != nil {
+				t.Fatal(err)
+			}
+			d := Draws{N: n, B: 300, Seed: 5}
+			var out Values
+			var sc evalScratch
+			count := make([]int32, n)
+			var aucs []float64
+			boyceDefined := 0
+			for b := 0; b < d.B; b++ {
+				d.fill(b, count)
+				ev.evalInto(count, &out, &sc)
+				want := ev.evalReference(count)
+				if !reflect.DeepEqual(out, want) {
+					t.Fatalf("resample %d: fast %+v, reference %+v", b, out, want)
+				}
+				if want.BoyceOK {
+					boyceDefined++
+				}
+				if want.N > 0 {
+					aucs = append(aucs, want.AUC)
+				}
+			}
+			if boyceDefined == 0 {
+				t.Error("no resample formed the Boyce index: the test compares nothing there")
+			}
+			_, wantSD := MeanSD(aucs)
+			if sd, used := ev.BootSD(d); sd != wantSD || used != len(aucs) {
+				t.Errorf("BootSD %v over %d resamples, reference %v over %d", sd, used, wantSD, len(aucs))
+			}
+		})
+	}
+}
+
+// BenchmarkBootSD times the AUC's SD over B = 1000 full-size resamples of
+// 500 test presences (every model x extent of a run computes one).
+func BenchmarkBootSD(b *testing.B) {
+	l, cells := benchLayout(b, 500)
+	a := l.NewAccumulator()
+	for _, v := range cells {
+		a.Add(v, 1000)
+	}
+	test := l.Values()
+	ids := make([]int, len(test))
+	for i := range ids {
+		ids[i] = i
+	}
+	ev, err := NewEvaluator(a, test, ids, nil, Settings{E: []float64{0.05, 0.1}})
+	if err != nil {
+		b.Fatal(err)
+	}
+	d := Draws{N: len(ids), B: 1000, Seed: 1}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		ev.BootSD(d)
+	}
+}
+
+// ranksOf is Ranks without the tie term.
+func ranksOf(v []float64) []float64 {
+	r, _ := Ranks(v)
+	return r
+}
