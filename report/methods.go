@@ -115,6 +115,12 @@ func methodsText(r *Results) string {
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
 	if st.BoyceSteps > 0 {
 		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
+		for _, m := range r.Models {
+			if m.NullKind == NullDistance {
+				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
+				break
+			}
+		}
 	}
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")

@@ -82,3 +82,22 @@ func TestNullsLeftOutOfAnalysis(t *testing.T) {
 		}
 	}
 }
+
+// TestMethodsNamesTheNullsHistogramFloor: the methods text says how the
+// distance-only null's Boyce histogram differs from a model's (its bins
+// have a floor), and says it only when the run scored that null.
+func TestMethodsNamesTheNullsHistogramFloor(t *testing.T) {
+	const floor = "for the distance-only null the bins are never narrower"
+	without, with := loadSample(t), withNull(t)
+	for _, r := range []*Results{without, with} {
+		if err := Analyze(r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if got := methodsText(without); strings.Contains(got, floor) {
+		t.Errorf("methods text of a run without the distance-only null speaks of its bins")
+	}
+	if got := methodsText(with); !strings.Contains(got, floor) {
+		t.Errorf("methods text of a run with the distance-only null lacks %q", floor)
+	}
+}
