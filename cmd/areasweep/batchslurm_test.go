@@ -1,6 +1,7 @@
 package main
 
 import (
+	"areasweep/cmd/internal/slurm/slurmtest"
 	"bytes"
 	"context"
 	"os"
@@ -8,60 +9,9 @@ import (
 	"path/filepath"
 	"regexp"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 )
-
-// startCluster starts the one-node SLURM cluster of scripts/slurm-local.sh
-// (installing the packages when missing) and returns the environment
-// for the client commands. It never skips: a machine that cannot run the
-// cluster fails the test, in CI and elsewhere. A cluster the test started
-// is stopped at its end.
-func startCluster(t *testing.T) []string {
-	t.Helper()
-	lockCluster(t)
-	script, err := filepath.Abs("../../scripts/slurm-local.sh")
-	if err != nil {
-		t.Fatal(err)
-	}
-	wasRunning := exec.Command(script, "status").Run() == nil
-	if out, err := exec.Command(script, "start").CombinedOutput(); err != nil {
-		t.Fatalf("starting the local cluster with %s start failed: %v\n%s", script, err, out)
-	}
-	if !wasRunning {
-		t.Cleanup(func() {
-			if out, err := exec.Command(script, "stop").CombinedOutput(); err != nil {
-				t.Errorf("stopping the cluster: %v\n%s", err, out)
-			}
-		})
-	}
-	line, err := exec.Command(script, "env").Output()
-	if err != nil {
-		t.Fatal(err)
-	}
-	conf := strings.TrimPrefix(strings.TrimSpace(string(line)), "export ")
-	if !strings.HasPrefix(conf, "SLURM_CONF=") {
-		t.Fatalf("%s env printed %q", script, line)
-	}
-	return append(os.Environ(), conf)
-}
-
-// lockCluster holds an exclusive lock on a file shared by every test that
-// uses the local cluster, until the test ends, so that tests of different
-// packages (run in parallel by go test ./...) never stop the cluster under
-// one another. The same lock is taken by cmd/internal/slurm's cluster test.
-func lockCluster(t *testing.T) {
-	t.Helper()
-	f, err := os.OpenFile(filepath.Join(os.TempDir(), "areasweep-slurm-test.lock"), os.O_CREATE|os.O_RDWR, 0o644)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX); err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { f.Close() }) // closing releases the lock, after the cluster's stop
-}
 
 // clusterWait bounds one submit-and-wait command of the cluster test: far
 // above the 20 to 40 s it takes on an idle 2-core machine, so that a
@@ -109,7 +59,7 @@ func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int)
 // wrote the summary. Submitting again runs no task (every one is
 // finished) and only the merge job, which rewrites the same summary.
 func TestBatchOnCluster(t *testing.T) {
-	env := startCluster(t)
+	env := slurmtest.Start(t, "../../scripts/slurm-local.sh")
 	s := sharedStudy(t)
 	table := filepath.Join(s.dir, "cluster.csv")
 	body := `# region-buffers: -40,60

@@ -1,6 +1,7 @@
 package slurm
 
 import (
+	"areasweep/cmd/internal/slurm/slurmtest"
 	"context"
 	"os"
 	"os/exec"
@@ -8,7 +9,6 @@ import (
 	"reflect"
 	"strconv"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 )
@@ -25,34 +25,11 @@ import (
 // resubmits only the pending task, and finally checks that a failing task
 // leaves no marker and keeps the afterok merge job from running.
 func TestClusterArray(t *testing.T) {
-	lockCluster(t)
-	script, err := filepath.Abs("../../../scripts/slurm-local.sh")
-	if err != nil {
-		t.Fatal(err)
-	}
-	wasRunning := exec.Command(script, "status").Run() == nil
-	if out, err := exec.Command(script, "start").CombinedOutput(); err != nil {
-		t.Fatalf("starting the local cluster with %s start failed (CI=%q): %v\n%s", script, os.Getenv("CI"), err, out)
-	}
-	if !wasRunning {
-		t.Cleanup(func() {
-			if out, err := exec.Command(script, "stop").CombinedOutput(); err != nil {
-				t.Errorf("stopping the cluster: %v\n%s", err, out)
-			}
-		})
-	}
-	envLine, err := exec.Command(script, "env").Output()
-	if err != nil {
-		t.Fatal(err)
-	}
-	conf := strings.TrimPrefix(strings.TrimSpace(string(envLine)), "export ")
-	if !strings.HasPrefix(conf, "SLURM_CONF=") {
-		t.Fatalf("env printed %q", envLine)
-	}
+	env := slurmtest.Start(t, "../../../scripts/slurm-local.sh")
 	if _, err := exec.LookPath("sbatch"); err != nil {
 		t.Fatalf("sbatch is not on PATH after starting the cluster: %v", err)
 	}
-	s := Submitter{Env: append(os.Environ(), conf)}
+	s := Submitter{Env: env}
 	ctx, cancel := context.WithTimeout(context.Background(), 180*time.Second) // generous: a loaded machine schedules slowly; the test normally ends in about 15 s
 	defer cancel()
 
@@ -171,20 +148,4 @@ touch "$AREASWEEP_OUT/ok"`)
 	if _, err := os.Stat(filepath.Join(fdir, "merged")); err == nil {
 		t.Fatal("the merge job ran although a task failed")
 	}
-}
-
-// lockCluster holds an exclusive lock on a file shared by every test that
-// uses the local cluster, until the test ends, so that tests of different
-// packages (run in parallel by go test ./...) never stop the cluster under
-// one another (cmd/areasweep's batch test takes the same lock).
-func lockCluster(t *testing.T) {
-	t.Helper()
-	f, err := os.OpenFile(filepath.Join(os.TempDir(), "areasweep-slurm-test.lock"), os.O_CREATE|os.O_RDWR, 0o644)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX); err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { f.Close() }) // closing releases the lock, after the cluster's stop
 }
