@@ -80,19 +80,7 @@ func TestNullGoldenAUC(t *testing.T) {
 	}
 	// The sorting-bias tally sees the pass's values, as the run's does.
 	var bg nullmodel.Background
-	rows := func(row, c0 int, vals []float64, w []int64) {
-		for k := range fam.Members {
-			var d []float64
-			var wk []int64
-			for i, x := range vals {
-				if fam.Has(k, row*g.Width+c0+i) {
-					d, wk = append(d, -x), append(wk, w[i])
-				}
-			}
-			bg.Add(k, d, wk)
-		}
-	}
-	accs, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: rows})
+	accs, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: bruteTally(g, fam, &bg)})
 	if err != nil {
 		t.Fatal(err)
 	}

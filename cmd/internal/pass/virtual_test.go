@@ -189,17 +189,9 @@ func TestRowsHook(t *testing.T) {
 	var bg nullmodel.Background
 	seen := make([]int, g.Height)
 	var mu sync.Mutex
+	tally := bruteTally(g, fam, &bg)
 	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
-		for k := range fam.Members {
-			var d []float64
-			var wk []int64
-			for i, x := range vals {
-				if fam.Has(k, row*g.Width+c0+i) {
-					d, wk = append(d, -x), append(wk, w[i])
-				}
-			}
-			bg.Add(k, d, wk)
-		}
+		tally(row, c0, vals, w)
 		mu.Lock()
 		seen[row] += len(vals)
 		mu.Unlock()
@@ -426,6 +418,24 @@ func TestWorkerPanicIsInternalError(t *testing.T) {
 		var ie *InternalError
 		if !errors.As(err, &ie) || !strings.Contains(err.Error(), "index out of range in a test field") {
 			t.Errorf("workers=%d: error %v, want an *InternalError with the panic's text", workers, err)
+		}
+	}
+}
+
+// bruteTally returns a rows hook that adds each row's distances (minus the
+// null's values) to bg for every member holding the cell, one cell at a
+// time through Family.Has: the plain reference for the run's tally.
+func bruteTally(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
+	return func(row, c0 int, vals []float64, w []int64) {
+		for k := range fam.Members {
+			var d []float64
+			var wk []int64
+			for i, x := range vals {
+				if fam.Has(k, row*g.Width+c0+i) {
+					d, wk = append(d, -x), append(wk, w[i])
+				}
+			}
+			bg.Add(k, d, wk)
 		}
 	}
 }
