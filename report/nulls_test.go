@@ -1,6 +1,7 @@
 package report
 
 import (
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -99,5 +100,48 @@ func TestMethodsNamesTheNullsHistogramFloor(t *testing.T) {
 	}
 	if got := methodsText(with); !strings.Contains(got, floor) {
 		t.Errorf("methods text of a run with the distance-only null lacks %q", floor)
+	}
+}
+
+// TestExplorerListsNulls checks that the page's model-and-extent explorer
+// offers the null after the models, under its label, with its own curves:
+// issue 11 asks for the null in the ROC panel, and the explorer is the
+// page's ROC panel.
+func TestExplorerListsNulls(t *testing.T) {
+	r := withNull(t)
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	b, err := teachData(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pl teachPayload
+	if err := json.Unmarshal(b, &pl); err != nil {
+		t.Fatal(err)
+	}
+	want := append(append([]string{}, r.Sensitivity.ModelNames...), DistanceNullName)
+	if !reflect.DeepEqual(pl.Models, want) {
+		t.Fatalf("explorer lists %q, want the models then the null: %q", pl.Models, want)
+	}
+	if got := pl.Labels[len(pl.Labels)-1]; got != DistanceNullName+" (distance-only null)" {
+		t.Errorf("null labelled %q", got)
+	}
+	for i, m := range r.Sensitivity.ModelNames {
+		if pl.Labels[i] != m {
+			t.Errorf("model %q labelled %q", m, pl.Labels[i])
+		}
+	}
+	scored := 0
+	for _, c := range pl.Cells {
+		if c.Model == DistanceNullName && c.Scored {
+			scored++
+			if c.AUC != 0.999 {
+				t.Errorf("null on %s: AUC %v, want its own score 0.999", c.Extent, c.AUC)
+			}
+		}
+	}
+	if scored == 0 {
+		t.Error("the null has no scored cell in the explorer")
 	}
 }

@@ -38,7 +38,10 @@ type teachExtent struct {
 }
 
 type teachPayload struct {
+	// Models lists the models, then the nulls (references any model must
+	// beat, after Hijmans 2012), and Labels how the page names each one.
 	Models  []string      `json:"models"`
+	Labels  []string      `json:"labels"`
 	Extents []teachExtent `json:"extents"`
 	E       float64       `json:"e"`
 	Default string        `json:"default_extent"`
@@ -51,9 +54,13 @@ func round4(v float64) float64 { return math.Round(v*1e4) / 1e4 }
 // rounded to 4 decimals (drawing only).
 func teachData(r *Results) ([]byte, error) {
 	s := r.Sensitivity
-	pl := teachPayload{Models: s.ModelNames, Extents: []teachExtent{}, Cells: []teachCell{}}
-	if pl.Models == nil {
-		pl.Models = []string{}
+	pl := teachPayload{Models: []string{}, Labels: []string{}, Extents: []teachExtent{}, Cells: []teachCell{}}
+	pl.Models = append(pl.Models, s.ModelNames...)
+	for _, n := range nulls(r) {
+		pl.Models = append(pl.Models, n.Name)
+	}
+	for _, m := range pl.Models {
+		pl.Labels = append(pl.Labels, modelLabel(r, m))
 	}
 	if len(r.Settings.E) > 0 {
 		pl.E = r.Settings.E[0]

@@ -59,7 +59,10 @@
       document.getElementById("teach-sentence").textContent = "No scored extent to show.";
       return;
     }
-    data.models.forEach(function (m) { selM.appendChild(new Option(m, m)); });
+    var labels = {};
+    data.models.forEach(function (m, i) { labels[m] = data.labels[i] || m; selM.appendChild(new Option(labels[m], m)); });
+    // who names the chosen model in a sentence: "model good", or a null by its label.
+    function who(m) { return labels[m] === m ? "model " + m : labels[m]; }
     data.extents.forEach(function (e) { selE.appendChild(new Option(e.id + " (" + e.area + " km²)", e.id)); });
     var cells = {};
     data.cells.forEach(function (c) { cells[c.model + "\u0000" + c.extent] = c; });
@@ -137,13 +140,14 @@
       box.setAttribute("data-extent", eid);
       box.setAttribute("data-model", m);
       if (!c || !c.scored) {
-        sent.textContent = "Model " + m + " is not scored on " + eid + (c && c.reason ? ": " + c.reason : "") + ".";
+        var w = who(m);
+        sent.textContent = w.charAt(0).toUpperCase() + w.slice(1) + " is not scored on " + eid + (c && c.reason ? ": " + c.reason : "") + ".";
         box.setAttribute("data-auc", "");
       } else {
         if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
-        sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) model " + m +
-          " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model on the other extents" +
+        sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) " + who(m) +
+          " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same scores on the other extents" +
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
