@@ -207,6 +207,38 @@ func (l *Layout) Locate(v float64) int {
 	return 2*j + (b2i(a == v) | b2i(b == v))
 }
 
+// LocateRow sets bins[i] to Locate(vals[i]), or to -1 where vals[i] is
+// NaN, for every i < len(vals); bins must be at least as long as vals. It
+// is Locate over a row of cells in one loop, the first step of a raster
+// pass (Accumulator.AddRow skips the cells at -1).
+func (l *Layout) LocateRow(vals []float64, bins []int32) {
+	bins = bins[:len(vals)]
+	lo, scale, nb, nbf := l.lo, l.scale, l.nb, l.nbf
+	idx, ds := l.idx, l.ds
+	for i, v := range vals {
+		if v != v { // NaN
+			bins[i] = -1
+			continue
+		}
+		k := 0
+		if x := (v - lo) * scale; x >= 0 {
+			k = nb - 1
+			if x < nbf {
+				k = int(x)
+			}
+		}
+		j, end := int(idx[k]), int(idx[k+1])
+		if end-j > 2 {
+			bins[i] = int32(l.Locate(v))
+			continue
+		}
+		w := ds[j : j+2 : j+2]
+		a, b := w[0], w[1]
+		j += b2i(a < v) + b2i(b < v)
+		bins[i] = int32(2*j + (b2i(a == v) | b2i(b == v)))
+	}
+}
+
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.
 func (l *Layout) Values() []float64 { return slices.Clone(l.d) }
 
