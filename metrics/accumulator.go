@@ -220,9 +220,17 @@ func (a *Accumulator) Merge(b *Accumulator) error {
 	if a.layout != b.layout {
 		return errors.New("metrics: Merge: accumulators were made on different layouts")
 	}
-	for i := range a.bins {
-		a.bins[i].area += b.bins[i].area
-		a.bins[i].n += b.bins[i].n
+	a.merge(b, 0, len(b.bins))
+	return nil
+}
+
+// merge adds b into a (same layout), given that only b's exact bins
+// [i0, i1) may be non-empty.
+func (a *Accumulator) merge(b *Accumulator, i0, i1 int) {
+	ab, bb := a.bins[i0:i1], b.bins[i0:i1]
+	for i := range bb {
+		ab[i].area += bb[i].area
+		ab[i].n += bb[i].n
 	}
 	if b.cells > 0 {
 		if a.cells == 0 {
@@ -242,7 +250,6 @@ func (a *Accumulator) Merge(b *Accumulator) error {
 	a.cells += b.cells
 	a.area += b.area
 	a.skipped += b.skipped
-	return nil
 }
 
 // Sub returns a minus b, where b holds a subset of a's cells (b's extent is

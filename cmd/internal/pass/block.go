@@ -60,17 +60,55 @@ type workerState struct {
 	sigOff   []int32
 	sigMem   []int32
 	sigCells []int64
-	sigAcc   []*metrics.Accumulator
-	free     []*metrics.Accumulator // shared accumulators not in use, empty
+	sigAcc   []*metrics.Shared
+	free     []*metrics.Shared // not in use, empty
+	dst      []*metrics.Accumulator
 
 	edges  []edge
 	active []int32
 	key    []byte
+
+	// rowW[row] is 1 + the weight of every cell of row on grids whose
+	// rows have one cell area (latitude-longitude and equal-area), 0 until
+	// computed; weights holds filled throughout its first wlen entries
+	// (filled < 0: no such fill).
+	rowW   []int64
+	filled int64
+	wlen   int
+}
+
+// rowWeights returns the integer area weights of cells c0 <= c < c1 of
+// row (RowWeights), computed once per row on grids whose rows have one
+// cell area.
+func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) []int64 {
+	if !g.Geographic && !g.EqualArea {
+		ws.filled = -1
+		ws.areas, ws.weights = RowWeights(g, row, c0, c1, ws.areas, ws.weights)
+		return ws.weights
+	}
+	if ws.rowW == nil {
+		ws.rowW = make([]int64, g.Height)
+	}
+	if ws.rowW[row] == 0 {
+		ws.filled = -1 // RowWeights writes into weights
+		var one []int64
+		ws.areas, one = RowWeights(g, row, c0, c0+1, ws.areas, ws.weights)
+		ws.rowW[row] = 1 + one[0]
+	}
+	w := ws.rowW[row] - 1
+	weights := ws.weights[:c1-c0]
+	if w != ws.filled || len(weights) > ws.wlen {
+		for i := range weights {
+			weights[i] = w
+		}
+		ws.filled, ws.wlen = w, len(weights)
+	}
+	return weights
 }
 
 func newWorkerState(bw, bh int) *workerState {
 	return &workerState{buf: make([]float64, bw*bh), weights: make([]int64, bw),
-		bins: make([]int32, bw), sigIndex: make(map[string]int32)}
+		bins: make([]int32, bw), sigIndex: make(map[string]int32), filled: -1}
 }
 
 // planBlock fills the block's targets, segments and signatures.
@@ -195,7 +233,7 @@ func (ws *workerState) members(id int32) []int32 { return ws.sigMem[ws.sigOff[id
 // signature of m members and c cells saves c*(m-1) additions and costs m
 // merges and a reset, each about (exact bins + histogram bins)/4 cell
 // additions.
-func (ws *workerState) share(layout *metrics.Layout) {
+func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator) {
 	ws.sigAcc = ws.sigAcc[:0]
 	for range ws.sigCells {
 		ws.sigAcc = append(ws.sigAcc, nil)
@@ -213,10 +251,16 @@ func (ws *workerState) share(layout *metrics.Layout) {
 			return
 		}
 		if len(ws.free) == 0 {
-			ws.free = append(ws.free, layout.NewAccumulator())
+			ws.free = append(ws.free, layout.NewShared())
 		}
-		ws.sigAcc[best] = ws.free[len(ws.free)-1]
+		sh := ws.free[len(ws.free)-1]
 		ws.free = ws.free[:len(ws.free)-1]
+		ws.dst = ws.dst[:0]
+		for _, k := range ws.members(int32(best)) {
+			ws.dst = append(ws.dst, accs[k])
+		}
+		sh.Begin(ws.dst)
+		ws.sigAcc[best] = sh
 	}
 }
 
@@ -224,7 +268,7 @@ func (ws *workerState) share(layout *metrics.Layout) {
 // the smallest member of each group holding it.
 func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
 	ws.planBlock(fam, groups, b)
-	ws.share(layout)
+	ws.share(layout, accs)
 	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
 	weights, bins := ws.weights[:b.w], ws.bins[:b.w]
@@ -249,7 +293,7 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		if len(segs) == 0 {
 			continue
 		}
-		ws.areas, weights = RowWeights(g, row, b.x0, x1, ws.areas, weights)
+		weights = ws.rowWeights(g, row, b.x0, x1)
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
@@ -314,17 +358,14 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		}
 	}
 	// The shared sums into each of their members.
-	for id, a := range ws.sigAcc {
-		if a == nil {
+	for _, sh := range ws.sigAcc {
+		if sh == nil {
 			continue
 		}
-		for _, k := range ws.members(int32(id)) {
-			if err := accs[k].Merge(a); err != nil {
-				return &InternalError{fmt.Errorf("pass: merging a block's shared sums: %w", err)}
-			}
+		if err := sh.Drain(); err != nil {
+			return &InternalError{fmt.Errorf("pass: adding a block's shared sums: %w", err)}
 		}
-		a.Reset()
-		ws.free = append(ws.free, a)
+		ws.free = append(ws.free, sh)
 	}
 	return nil
 }
