@@ -44,7 +44,7 @@ func TestAddRowMatchesAdd(t *testing.T) {
 			t.Fatal(err)
 		}
 		const members = 4
-		ref := make([]*Accumulator, members) // Add, cell by cell
+		ref := make([]*Accumulator, members)  // Add, cell by cell
 		rows := make([]*Accumulator, members) // AddRow
 		shared := make([]*Accumulator, members)
 		for k := range ref {
