@@ -69,6 +69,10 @@ type Study struct {
 	points []report.Point
 	lonlat []extent.LonLat // per point
 	cell   []int           // per point, -1 outside
+	// firstVals, firstValid: the first model's values at cell, read once
+	// when the points are placed and reused by its pass's layout.
+	firstVals  []float64
+	firstValid []bool
 	fam    *extent.Family
 	res    *report.Results
 	dir    *outdir.Dir
