@@ -54,6 +54,11 @@ type Layout struct {
 	nb    int
 	nbf   float64 // float64(nb)
 	idx   []int32
+	// tab[k] settles bucket k at once where it can: 2*idx[k] (the bin of
+	// every v in it) when it holds no layout value, -1-idx[k] when it holds
+	// one or two (compare v with d[idx[k]] and d[idx[k]+1]), crowded when
+	// more (bisect).
+	tab []int32
 
 	hBins int
 
@@ -149,8 +154,22 @@ func NewLayout(values []float64, histBins int, opts ...LayoutOption) (*Layout, e
 		}
 		l.idx[k] = int32(j)
 	}
+	l.tab = make([]int32, l.nb)
+	for k := range l.tab {
+		switch j, n := l.idx[k], l.idx[k+1]-l.idx[k]; {
+		case n == 0:
+			l.tab[k] = 2 * j
+		case n <= 2:
+			l.tab[k] = -1 - j
+		default:
+			l.tab[k] = crowded
+		}
+	}
 	return l, nil
 }
+
+// crowded marks a lookup bucket of more than two layout values.
+const crowded = math.MinInt32
 
 // bucket maps v to its lookup bucket, clamped to [0, nb-1] (NaN gives 0).
 // It is monotone non-decreasing in v, which is what makes the lookup exact.
@@ -210,11 +229,14 @@ func (l *Layout) Locate(v float64) int {
 // LocateRow sets bins[i] to Locate(vals[i]), or to -1 where vals[i] is
 // NaN, for every i < len(vals); bins must be at least as long as vals. It
 // is Locate over a row of cells in one loop, the first step of a raster
-// pass (Accumulator.AddRow skips the cells at -1).
+// pass (Accumulator.AddRow skips the cells at -1). Most cells fall in a
+// lookup bucket without a layout value (there are about four buckets per
+// value), which gives their bin at once; the others are compared with the
+// bucket's one or two values, or bisected in a crowded bucket.
 func (l *Layout) LocateRow(vals []float64, bins []int32) {
 	bins = bins[:len(vals)]
 	lo, scale, nb, nbf := l.lo, l.scale, l.nb, l.nbf
-	idx, ds := l.idx, l.ds
+	tab, ds := l.tab, l.ds
 	for i, v := range vals {
 		if v != v { // NaN
 			bins[i] = -1
@@ -227,15 +249,24 @@ func (l *Layout) LocateRow(vals []float64, bins []int32) {
 				k = int(x)
 			}
 		}
-		j, end := int(idx[k]), int(idx[k+1])
-		if end-j > 2 {
+		e := tab[k]
+		if e >= 0 {
+			// No layout value in the bucket: d[j-1] < v < d[j] for
+			// j = idx[k], as bucket is monotone.
+			bins[i] = e
+			continue
+		}
+		if e == crowded {
 			bins[i] = int32(l.Locate(v))
 			continue
 		}
+		// One or two candidates a = d[j], b = d[j+1]; every d from j+2 on
+		// (or a NaN sentinel) compares as > v. Each candidate below v
+		// moves the bin up by 2, one equal to v by 1.
+		j := int(-1 - e)
 		w := ds[j : j+2 : j+2]
 		a, b := w[0], w[1]
-		j += b2i(a < v) + b2i(b < v)
-		bins[i] = int32(2*j + (b2i(a == v) | b2i(b == v)))
+		bins[i] = int32(2*j + b2i(v >= a) + b2i(v > a) + b2i(v >= b) + b2i(v > b))
 	}
 }
 

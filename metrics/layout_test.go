@@ -76,6 +76,19 @@ func TestLocate(t *testing.T) {
 				if bin := l.Locate(math.NaN()); bin != 0 {
 					t.Errorf("Locate(NaN) = %d, want 0", bin)
 				}
+				// LocateRow gives the same bins, and -1 for NaN.
+				probe = append(probe, math.NaN())
+				row := make([]int32, len(probe))
+				l.LocateRow(probe, row)
+				for i, v := range probe {
+					want := -1
+					if !math.IsNaN(v) {
+						want = refLocate(d, v)
+					}
+					if int(row[i]) != want {
+						t.Fatalf("LocateRow: %v in bin %d, want %d", v, row[i], want)
+					}
+				}
 			})
 		}
 	}

@@ -117,12 +117,24 @@ func Open(path string) (*Raster, error) {
 // value, and keeping both would let the order in which blocks reach a
 // worker decide which one a minimum or maximum reports.
 func (r *Raster) decode(buf []float64) {
-	plain := r.scale == 1 && r.offset == 0
+	nan := math.NaN()
+	if r.scale == 1 && r.offset == 0 {
+		nodata, has := r.nodata, r.hasNodata
+		for i, v := range buf {
+			switch {
+			case v-v != 0 || has && v == nodata: // v-v is NaN for NaN and ±Inf
+				buf[i] = nan
+			case v == 0:
+				buf[i] = 0 // -0 becomes +0
+			}
+		}
+		return
+	}
 	for i, v := range buf {
 		switch {
 		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && v == r.nodata:
 			buf[i] = math.NaN()
-		case !plain:
+		default:
 			buf[i] = v*r.scale + r.offset
 		}
 		if buf[i] == 0 {

@@ -89,12 +89,27 @@ func benchFamilies(g *extent.Grid) map[string]*extent.Family {
 // order, with metrics.Accumulator.Add (the reference), on families of
 // nested, overlapping, disjoint and identical members, blocks that do not
 // divide the grid, 1 and 2 workers and a row range. The values have no
-// data, -0, ties at layout values and a range that grows from block to
-// block, so that every path of the scoring (and every widening of the
-// histograms) is taken.
+// data (the no-data value, NaN, both infinities), -0, ties at layout
+// values and a range that grows from block to block, so that every path of
+// the scoring (and every widening of the histograms) is taken.
 func TestScoreMatchesCellByCell(t *testing.T) {
+	// Cell areas constant along rows (latitude-longitude, equal-area) and
+	// varying along them (Mercator: area factors per block of cells).
+	for _, grid := range []struct {
+		crs string
+		gt  [6]float64
+	}{
+		{"EPSG:4326", [6]float64{-20, 0.05, 0, 70, 0, -0.05}},
+		{"EPSG:6933", [6]float64{-2e6, 5000, 0, 6e6, 0, -5000}},
+		{"EPSG:3857", [6]float64{-2e6, 5000, 0, 9e6, 0, -5000}},
+	} {
+		t.Run(grid.crs, func(t *testing.T) { scoreMatchesCellByCell(t, grid.crs, grid.gt) })
+	}
+}
+
+func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 	w, h := 700, 460
-	g, err := extent.NewGrid(w, h, [6]float64{-20, 0.05, 0, 70, 0, -0.05}, "EPSG:4326")
+	g, err := extent.NewGrid(w, h, gt, crs)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -108,6 +123,10 @@ func TestScoreMatchesCellByCell(t *testing.T) {
 				v = -9999
 			case (r*w+c)%61 == 0:
 				v = float32(math.Copysign(0, -1))
+			case (r*w+c)%113 == 0:
+				v = float32(math.NaN())
+			case (r*w+c)%127 == 0:
+				v = float32(math.Inf(1 - 2*(r%2)))
 			}
 			vals[r*w+c] = v
 		}
@@ -117,7 +136,7 @@ func TestScoreMatchesCellByCell(t *testing.T) {
 		open: func() (Source, error) { return memSource{w: w, vals: vals}, nil }}
 	var lv []float64
 	for i := 0; i < len(vals); i += 997 {
-		if v := vals[i]; v != -9999 {
+		if v := float64(vals[i]); v != -9999 && !math.IsNaN(v) && !math.IsInf(v, 0) {
 			lv = append(lv, float64(v))
 		}
 	}
@@ -127,8 +146,11 @@ func TestScoreMatchesCellByCell(t *testing.T) {
 	}
 	fams := benchFamilies(g)
 	fams["nested"] = nestedFamily(g, 4, true)
-	var areas []float64
-	var weights []int64
+	// The weights the pass adds, row by row.
+	rowWeights := make([][]int64, h)
+	for r := range rowWeights {
+		_, rowWeights[r] = RowWeights(g, r, 0, w, nil, nil)
+	}
 	for _, name := range []string{"full8", "run8", "nested"} {
 		fam := fams[name]
 		for _, rr := range []*RowRange{nil, {First: 100, End: 333}} {
@@ -136,14 +158,31 @@ func TestScoreMatchesCellByCell(t *testing.T) {
 			if rr != nil {
 				first, end = rr.First, rr.End
 			}
+			// The statistics over the cells of any member.
+			var wantSt Stats
+			for r := first; r < end; r++ {
+				weights := rowWeights[r]
+				for c := 0; c < w; c++ {
+					v := float64(vals[r*w+c])
+					in := false
+					for k := range fam.Members {
+						in = in || fam.Has(k, r*w+c)
+					}
+					if !in || v == -9999 || math.IsNaN(v) || math.IsInf(v, 0) {
+						continue
+					}
+					wantSt.AnyValid = true
+					wantSt.Merge(Stats{Min: v + 0, Max: v + 0, FloorArea: weights[c], Area: weights[c], AnyValid: true})
+				}
+			}
 			want := make([][]byte, len(fam.Members))
 			for k := range fam.Members {
 				a := layout.NewAccumulator()
 				for r := first; r < end; r++ {
-					areas, weights = RowWeights(g, r, 0, w, areas, weights)
+					weights := rowWeights[r]
 					for c := 0; c < w; c++ {
 						v := vals[r*w+c]
-						if v != -9999 && fam.Has(k, r*w+c) {
+						if v != -9999 && !math.IsNaN(float64(v)) && !math.IsInf(float64(v), 0) && fam.Has(k, r*w+c) {
 							a.Add(float64(v), weights[c])
 						}
 					}
@@ -151,9 +190,12 @@ func TestScoreMatchesCellByCell(t *testing.T) {
 				want[k] = metrics.EncodeAccumulator(a)
 			}
 			for _, workers := range []int{1, 2} {
-				accs, _, err := score(p, g, fam, fam.Groups(), layout, Options{Workers: workers, RowRange: rr})
+				accs, st, err := score(p, g, fam, fam.Groups(), layout, Options{Workers: workers, RowRange: rr})
 				if err != nil {
 					t.Fatal(err)
+				}
+				if st != wantSt {
+					t.Errorf("family %s, rows %v, %d workers: statistics %+v, want %+v", name, rr, workers, st, wantSt)
 				}
 				for k, a := range accs {
 					if !bytes.Equal(metrics.EncodeAccumulator(a), want[k]) {
