@@ -73,13 +73,13 @@ type Study struct {
 	// when the points are placed and reused by its pass's layout.
 	firstVals  []float64
 	firstValid []bool
-	fam    *extent.Family
-	res    *report.Results
-	dir    *outdir.Dir
-	ownDir bool
-	stage  string
-	valid  extent.Valid // nil until known: the family is then unclipped
-	nWarn  int          // family warnings already reported
+	fam        *extent.Family
+	res        *report.Results
+	dir        *outdir.Dir
+	ownDir     bool
+	stage      string
+	valid      extent.Valid // nil until known: the family is then unclipped
+	nWarn      int          // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator
