@@ -58,9 +58,7 @@ func runPass(b *testing.B, l *Layout, cells []float64, extents int) {
 		off := done & (benchCells - 1)
 		n := min(row, b.N-done)
 		vals := cells[off : off+n]
-		for x, v := range vals {
-			bins[x] = int32(l.Locate(v))
-		}
+		l.LocateRow(vals, bins)
 		for _, a := range accs {
 			a.AddRow(bins[:n], vals, weights)
 		}
