@@ -233,22 +233,33 @@ func (l *Layout) Locate(v float64) int {
 
 // LocateRow sets bins[i] to Locate(vals[i]), or to -1 where vals[i] is
 // NaN, for every i < len(vals); bins must be at least as long as vals. It
-// is Locate over a row of cells in one loop, the first step of a raster
+// returns the number n of values that are not NaN and, when n > 0, the
+// smallest and largest of them, lo and hi (+0 for a zero of either sign).
+// It is Locate over a row of cells in one loop, the first step of a raster
 // pass (Accumulator.AddRow skips the cells at -1). Most cells fall in a
 // lookup bucket without a layout value (there are about 16 buckets per
 // value), which gives their bin at once; the others are compared with the
 // bucket's one or two values, or bisected in a crowded bucket.
-func (l *Layout) LocateRow(vals []float64, bins []int32) {
+func (l *Layout) LocateRow(vals []float64, bins []int32) (n int, lo, hi float64) {
 	bins = bins[:len(vals)]
-	lo, scale, nb, nbf := l.lo, l.scale, l.nb, l.nbf
+	dlo, scale, nb, nbf := l.lo, l.scale, l.nb, l.nbf
 	tab, ds := l.tab, l.ds
+	lo, hi = math.Inf(1), math.Inf(-1)
+	nan := 0
 	for i, v := range vals {
 		if v != v { // NaN
 			bins[i] = -1
+			nan++
 			continue
 		}
+		if v < lo {
+			lo = v
+		}
+		if v > hi {
+			hi = v
+		}
 		k := 0
-		if x := (v - lo) * scale; x >= 0 {
+		if x := (v - dlo) * scale; x >= 0 {
 			k = nb - 1
 			if x < nbf {
 				k = int(x)
@@ -273,6 +284,13 @@ func (l *Layout) LocateRow(vals []float64, bins []int32) {
 		a, b := w[0], w[1]
 		bins[i] = int32(2*j + b2i(v >= a) + b2i(v > a) + b2i(v >= b) + b2i(v > b))
 	}
+	if lo == 0 {
+		lo = 0 // -0 becomes +0
+	}
+	if hi == 0 {
+		hi = 0
+	}
+	return len(vals) - nan, lo, hi
 }
 
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.

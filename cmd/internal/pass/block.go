@@ -79,12 +79,12 @@ type workerState struct {
 
 // rowWeights returns the integer area weights of cells c0 <= c < c1 of
 // row (RowWeights), computed once per row on grids whose rows have one
-// cell area.
-func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) []int64 {
+// cell area, and that one weight, or -1 when they differ.
+func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) ([]int64, int64) {
 	if !g.Geographic && !g.EqualArea {
 		ws.filled = -1
 		ws.areas, ws.weights = RowWeights(g, row, c0, c1, ws.areas, ws.weights)
-		return ws.weights
+		return ws.weights, -1
 	}
 	if ws.rowW == nil {
 		ws.rowW = make([]int64, g.Height)
@@ -103,7 +103,7 @@ func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) []int64 {
 		}
 		ws.filled, ws.wlen = w, len(weights)
 	}
-	return weights
+	return weights, w
 }
 
 func newWorkerState(bw, bh int) *workerState {
@@ -271,7 +271,7 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 	ws.share(layout, accs)
 	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
-	weights, bins := ws.weights[:b.w], ws.bins[:b.w]
+	bins := ws.bins[:b.w]
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
 		base := row*g.Width + b.x0
@@ -293,7 +293,7 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		if len(segs) == 0 {
 			continue
 		}
-		weights = ws.rowWeights(g, row, b.x0, x1)
+		weights, rowW := ws.rowWeights(g, row, b.x0, x1)
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
@@ -303,16 +303,20 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 		for _, s := range segs {
 			shared = shared || ws.sigAcc[s.sig] != nil
-			layout.LocateRow(vals[s.x0:s.x1], bins[s.x0:s.x1])
-			for x := int(s.x0); x < int(s.x1); x++ {
-				if bins[x] < 0 {
-					continue // no value
-				}
-				if validCells != nil {
-					// Bits are gathered per 64-bit word and set with one
-					// atomic OR per word (blocks of other workers may share
-					// the word at their edges).
-					i := base + x
+			sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
+			n, lo, hi := layout.LocateRow(sv, sb)
+			if n == 0 {
+				continue
+			}
+			if validCells != nil {
+				// Bits are gathered per 64-bit word and set with one
+				// atomic OR per word (blocks of other workers may share
+				// the word at their edges).
+				for x, bin := range sb {
+					if bin < 0 {
+						continue
+					}
+					i := base + int(s.x0) + x
 					if i>>6 != vword {
 						if vbits != 0 {
 							validCells.OrAtomic(vword, vbits)
@@ -321,21 +325,29 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 					}
 					vbits |= 1 << (uint(i) & 63)
 				}
-				v, w := vals[x], weights[x]
-				switch {
-				case area == 0 || v < mn:
-					if area == 0 {
-						mx = v
-					}
-					mn, floorArea = v, w
-				case v == mn:
-					floorArea += w
-				}
-				if v > mx {
-					mx = v
-				}
-				area += w
 			}
+			segArea := int64(n) * rowW
+			if rowW < 0 {
+				segArea = 0
+				for x, bin := range sb {
+					if bin >= 0 {
+						segArea += sw[x]
+					}
+				}
+			}
+			switch {
+			case area == 0 || lo < mn:
+				if area == 0 {
+					mx = hi
+				}
+				mn, floorArea = lo, areaAt(sb, sv, sw, lo)
+			case lo == mn:
+				floorArea += areaAt(sb, sv, sw, lo)
+			}
+			if hi > mx {
+				mx = hi
+			}
+			area += segArea
 		}
 		st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
 		if vbits != 0 {
@@ -368,4 +380,16 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		ws.free = append(ws.free, sh)
 	}
 	return nil
+}
+
+// areaAt returns the total weight of the cells of a run with bins[i] >= 0
+// and value v.
+func areaAt(bins []int32, vals []float64, weights []int64, v float64) int64 {
+	var a int64
+	for i, bin := range bins {
+		if bin >= 0 && vals[i] == v {
+			a += weights[i]
+		}
+	}
+	return a
 }

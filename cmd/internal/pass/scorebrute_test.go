@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"slices"
 	"testing"
 
 	"areasweep/extent"
@@ -91,7 +92,8 @@ func benchFamilies(g *extent.Grid) map[string]*extent.Family {
 // divide the grid, 1 and 2 workers and a row range. The values have no
 // data (the no-data value, NaN, both infinities), -0, ties at layout
 // values and a range that grows from block to block, so that every path of
-// the scoring (and every widening of the histograms) is taken.
+// the scoring (and every widening of the histograms) is taken. The pass's
+// statistics and valid cells are checked the same way.
 func TestScoreMatchesCellByCell(t *testing.T) {
 	// Cell areas constant along rows (latitude-longitude, equal-area) and
 	// varying along them (Mercator: area factors per block of cells).
@@ -158,8 +160,9 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 			if rr != nil {
 				first, end = rr.First, rr.End
 			}
-			// The statistics over the cells of any member.
+			// The statistics and the valid cells over the cells of any member.
 			var wantSt Stats
+			wantValid := extent.NewValid(g.Cells())
 			for r := first; r < end; r++ {
 				weights := rowWeights[r]
 				for c := 0; c < w; c++ {
@@ -172,6 +175,7 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 						continue
 					}
 					wantSt.AnyValid = true
+					wantValid.Set(r*w + c)
 					wantSt.Merge(Stats{Min: v + 0, Max: v + 0, FloorArea: weights[c], Area: weights[c], AnyValid: true})
 				}
 			}
@@ -190,9 +194,13 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 				want[k] = metrics.EncodeAccumulator(a)
 			}
 			for _, workers := range []int{1, 2} {
-				accs, st, err := score(p, g, fam, fam.Groups(), layout, Options{Workers: workers, RowRange: rr})
+				valid := extent.NewValid(g.Cells())
+				accs, st, err := score(p, g, fam, fam.Groups(), layout, Options{Workers: workers, RowRange: rr, Valid: valid})
 				if err != nil {
 					t.Fatal(err)
+				}
+				if !slices.Equal(valid, wantValid) {
+					t.Errorf("family %s, rows %v, %d workers: valid cells differ", name, rr, workers)
 				}
 				if st != wantSt {
 					t.Errorf("family %s, rows %v, %d workers: statistics %+v, want %+v", name, rr, workers, st, wantSt)
