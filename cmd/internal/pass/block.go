@@ -23,9 +23,9 @@ import (
 // exact, so the accumulators are the same as when every cell is added to
 // every member (TestScoreMatchesCellByCell checks it byte for byte).
 
-// maxShared caps the shared accumulators a worker uses in one block (and
-// so keeps in memory).
-const maxShared = 4
+// MaxShared caps the shared accumulators (metrics.Shared) a worker uses in
+// one block, and so keeps in memory beside its accumulator per member.
+const MaxShared = 4
 
 // target is a run of cells of one block row whose smallest member in its
 // group is k; columns are relative to the block.
@@ -228,7 +228,7 @@ func (ws *workerState) segment(x0, x1 int32) {
 // members returns the members of signature id.
 func (ws *workerState) members(id int32) []int32 { return ws.sigMem[ws.sigOff[id]:ws.sigOff[id+1]] }
 
-// share gives a shared accumulator to the signatures (at most maxShared)
+// share gives a shared accumulator to the signatures (at most MaxShared)
 // where it saves the most additions, if it saves more than it costs: a
 // signature of m members and c cells saves c*(m-1) additions and costs m
 // merges and a reset, each about (exact bins + histogram bins)/4 cell
@@ -239,7 +239,7 @@ func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator
 		ws.sigAcc = append(ws.sigAcc, nil)
 	}
 	cost := int64(layout.Bins()+layout.HistBins()) / 4
-	for n := 0; n < maxShared; n++ {
+	for n := 0; n < MaxShared; n++ {
 		best, saving := -1, int64(0)
 		for id, c := range ws.sigCells {
 			m := int64(len(ws.members(int32(id))))
