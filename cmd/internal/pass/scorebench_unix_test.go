@@ -43,7 +43,7 @@ func BenchmarkScoreMem(b *testing.B) {
 	layout := mustLayout(b, 0, 1)
 	fams := benchFamilies(g)
 	fams["none"] = extent.NewFamilyFromRuns(g, []extent.Member{{ID: "0", Status: vocab.StatusOK}}, func(k, row int) []int32 { return nil })
-	for _, name := range []string{"none", "full8", "run8"} {
+	for _, name := range []string{"none", "full8", "run8", "discs60"} {
 		fam := fams[name]
 		b.Run("family="+name, func(b *testing.B) {
 			b.ReportAllocs()

@@ -37,7 +37,8 @@ func (memSource) Close() error { return nil }
 // NullVsRaster family (8 members holding every cell, 8 groups), and a
 // family shaped like a run's: a chain of three nested discs (region and
 // buffers), an ellipse (hull), the whole grid, and three disjoint bands
-// inside the largest disc (ecoregions), so 8 members in 6 groups.
+// inside the largest disc (ecoregions), so 8 members in 6 groups; and 60
+// overlapping discs, each its own group.
 func benchFamilies(g *extent.Grid) map[string]*extent.Family {
 	w, h := g.Width, g.Height
 	cx, cy := float64(w)/2, float64(h)/2
@@ -82,7 +83,26 @@ func benchFamilies(g *extent.Grid) map[string]*extent.Family {
 		return nil
 	})
 	run.Chains["region"] = []int{0, 1, 2}
-	return map[string]*extent.Family{"full8": fullFamily(g, 8), "run8": run}
+	// 60 overlapping discs, each its own group: many edges in most rows
+	// (the overlay's worst case).
+	var many []extent.Member
+	for k := 0; k < 60; k++ {
+		many = append(many, extent.Member{ID: fmt.Sprint(k), Status: vocab.StatusOK})
+	}
+	discs := extent.NewFamilyFromRuns(g, many, func(k, row int) []int32 {
+		fx, fy, fr := float64((k*37)%60)/60, float64((k*23)%60)/60, 0.1+float64((k*13)%60)/200
+		dy := (float64(row) + 0.5 - fy*float64(h)) / (fr * float64(h))
+		if math.Abs(dy) >= 1 {
+			return nil
+		}
+		dx := fr * float64(h) * math.Sqrt(1-dy*dy)
+		a, b := max(0, int32(math.Ceil(fx*float64(w)-dx))), min(int32(w), int32(math.Ceil(fx*float64(w)+dx)))
+		if a >= b {
+			return nil
+		}
+		return []int32{a, b}
+	})
+	return map[string]*extent.Family{"full8": fullFamily(g, 8), "run8": run, "discs60": discs}
 }
 
 // TestScoreMatchesCellByCell: the pass's accumulators are byte for byte
@@ -153,7 +173,7 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 	for r := range rowWeights {
 		_, rowWeights[r] = RowWeights(g, r, 0, w, nil, nil)
 	}
-	for _, name := range []string{"full8", "run8", "nested"} {
+	for _, name := range []string{"full8", "run8", "discs60", "nested"} {
 		fam := fams[name]
 		for _, rr := range []*RowRange{nil, {First: 100, End: 333}} {
 			first, end := 0, h
