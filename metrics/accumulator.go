@@ -92,7 +92,7 @@ func (a *Accumulator) AddLocated(bin int, v float64, w int64) {
 	b.n++
 	x := gridX(v, a.hinv)
 	if !(x >= a.hlo && x < a.hhi) {
-		a.widen(v)
+		a.widen(v, v)
 		x = gridX(v, a.hinv)
 	}
 	h := &a.hist[int(x-a.hlo)]
@@ -109,44 +109,88 @@ func (a *Accumulator) AddLocated(bin int, v float64, w int64) {
 }
 
 // AddRow adds the cells i of one row with bins[i] >= 0: exact bin bins[i]
-// (from Locate), value vals[i] (finite) and area weight weights[i] (>= 0),
-// as AddLocated does for each. vals and weights must be at least as long as
-// bins.
+// (from Locate or LocateRow), value vals[i] (finite) and area weight
+// weights[i] (>= 0), as AddLocated does for each. vals and weights must be
+// at least as long as bins.
+//
+// It finds the run's range first and widens the histogram's grid once for
+// it (if needed), so that the loop over the cells has no test but the
+// bin's sign; the grid, like every sum, ends the same as when the cells are
+// added one at a time (see gridExp).
 func (a *Accumulator) AddRow(bins []int32, vals []float64, weights []int64) {
 	vals, weights = vals[:len(bins)], weights[:len(bins)]
-	// The body of AddLocated, with the totals and extremes kept in locals
-	// (written back before the grid is widened, which reads them).
-	mn, mx, cells, area := a.min, a.max, a.cells, a.area
+	lo, hi := math.Inf(1), math.Inf(-1)
 	for i, bin := range bins {
-		if bin < 0 {
-			continue
+		if bin >= 0 {
+			v := vals[i]
+			if v < lo {
+				lo = v
+			}
+			if v > hi {
+				hi = v
+			}
 		}
-		v, w := vals[i], weights[i]
-		if v == 0 {
-			v = 0
-		}
-		b := &a.bins[bin]
-		b.area += w
-		b.n++
-		x := gridX(v, a.hinv)
-		if !(x >= a.hlo && x < a.hhi) {
-			a.min, a.max, a.cells, a.area = mn, mx, cells, area
-			a.widen(v)
-			x = gridX(v, a.hinv)
-		}
-		h := &a.hist[int(x-a.hlo)]
-		h.area += w
-		h.n++
-		if v < mn {
-			mn = v
-		}
-		if v > mx {
-			mx = v
-		}
-		cells++
-		area += w
 	}
-	a.min, a.max, a.cells, a.area = mn, mx, cells, area
+	if lo > hi {
+		return // no cell
+	}
+	if lo == 0 {
+		lo = 0 // -0 and +0 are one value: Min and Max report +0
+	}
+	if hi == 0 {
+		hi = 0
+	}
+	// gridX is monotone in v, so the window holds [lo, hi] iff it holds
+	// both ends.
+	if !(gridX(lo, a.hinv) >= a.hlo && gridX(hi, a.hinv) < a.hhi) {
+		a.widen(lo, hi)
+	}
+	ab, hist, inv, base := a.bins, a.hist, a.hinv, a.hbase
+	var cells, area int64
+	if lo >= 0 {
+		// v * 2^-e >= 0 (or -0): truncation is the floor.
+		for i, bin := range bins {
+			if bin < 0 {
+				continue
+			}
+			w := weights[i]
+			b := &ab[bin]
+			b.area += w
+			b.n++
+			h := &hist[int64(vals[i]*inv)-base]
+			h.area += w
+			h.n++
+			cells++
+			area += w
+		}
+	} else {
+		for i, bin := range bins {
+			if bin < 0 {
+				continue
+			}
+			v, w := vals[i], weights[i]
+			b := &ab[bin]
+			b.area += w
+			b.n++
+			x := math.Floor(v * inv)
+			if x == 0 && v < 0 {
+				x = -1 // v * 2^-e underflowed to -0 (see gridX)
+			}
+			h := &hist[int64(x)-base]
+			h.area += w
+			h.n++
+			cells++
+			area += w
+		}
+	}
+	if lo < a.min {
+		a.min = lo
+	}
+	if hi > a.max {
+		a.max = hi
+	}
+	a.cells += cells
+	a.area += area
 }
 
 // Reset empties the accumulator, keeping its layout and memory.
@@ -176,9 +220,17 @@ func (a *Accumulator) Merge(b *Accumulator) error {
 	if a.layout != b.layout {
 		return errors.New("metrics: Merge: accumulators were made on different layouts")
 	}
-	for i := range a.bins {
-		a.bins[i].area += b.bins[i].area
-		a.bins[i].n += b.bins[i].n
+	a.merge(b, 0, len(b.bins))
+	return nil
+}
+
+// merge adds b into a (same layout), given that only b's exact bins
+// [i0, i1) may be non-empty.
+func (a *Accumulator) merge(b *Accumulator, i0, i1 int) {
+	ab, bb := a.bins[i0:i1], b.bins[i0:i1]
+	for i := range bb {
+		ab[i].area += bb[i].area
+		ab[i].n += bb[i].n
 	}
 	if b.cells > 0 {
 		if a.cells == 0 {
@@ -198,7 +250,6 @@ func (a *Accumulator) Merge(b *Accumulator) error {
 	a.cells += b.cells
 	a.area += b.area
 	a.skipped += b.skipped
-	return nil
 }
 
 // Sub returns a minus b, where b holds a subset of a's cells (b's extent is

@@ -58,9 +58,7 @@ func runPass(b *testing.B, l *Layout, cells []float64, extents int) {
 		off := done & (benchCells - 1)
 		n := min(row, b.N-done)
 		vals := cells[off : off+n]
-		for x, v := range vals {
-			bins[x] = int32(l.Locate(v))
-		}
+		l.LocateRow(vals, bins)
 		for _, a := range accs {
 			a.AddRow(bins[:n], vals, weights)
 		}
@@ -202,4 +200,26 @@ func BenchmarkCompare(b *testing.B) {
 			}
 		})
 	}
+}
+
+// BenchmarkLocateRow measures LocateRow on rows of 256 cells of a smooth
+// tile (as BenchmarkPassSmooth), with 1000 layout values: ns per cell.
+func BenchmarkLocateRow(b *testing.B) {
+	l, _ := benchLayout(b, 1000)
+	cells := make([]float64, benchCells)
+	r := rand.New(rand.NewPCG(3, 3))
+	for y := 0; y < 256; y++ {
+		for x := 0; x < 256; x++ {
+			v := 0.5 + 0.25*math.Sin(float64(x)/19) + 0.2*math.Cos(float64(y)/23) + 0.02*r.Float64()
+			cells[y*256+x] = math.Max(0, math.Min(1, v))
+		}
+	}
+	bins := make([]int32, 256)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		off := (i * 256) & (benchCells - 1)
+		l.LocateRow(cells[off:off+256], bins)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/(float64(b.N)*256), "ns/cell")
 }

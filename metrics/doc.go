@@ -27,6 +27,12 @@
 //		accs[k].AddLocated(bin, v, areaWeight)
 //	}
 //
+// A raster pass does the same a row at a time: LocateRow locates a row's
+// values into bins (-1 for no value), and AddRow adds a run of them to an
+// accumulator. Cells that go to several accumulators at once (a block
+// inside several extents) can be added once to a Shared, which Drain then
+// adds to each of them.
+//
 // Accumulators from different goroutines or tiles are combined with Merge;
 // the ring between two nested extents is outer.Sub(inner). Finally Score
 // turns an accumulator and the presence values into Scores.

@@ -139,11 +139,12 @@ func (a *Accumulator) regrid(e int, lo, hi float64) {
 	scratchPool.Put(sp)
 }
 
-// widen makes room in the histogram for v, which lies outside its window.
-func (a *Accumulator) widen(v float64) {
-	lo, hi := v, v
+// widen makes room in the histogram for the values [lo, hi] (lo <= hi,
+// neither -0), some of which lie outside its window: the grid of the
+// range the cells added so far and [lo, hi] span together.
+func (a *Accumulator) widen(lo, hi float64) {
 	if a.cells > 0 {
-		lo, hi = math.Min(a.min, v), math.Max(a.max, v)
+		lo, hi = math.Min(a.min, lo), math.Max(a.max, hi)
 	}
 	e := a.layout.histExp(lo, hi)
 	if a.cells > 0 {

@@ -76,6 +76,24 @@ func TestLocate(t *testing.T) {
 				if bin := l.Locate(math.NaN()); bin != 0 {
 					t.Errorf("Locate(NaN) = %d, want 0", bin)
 				}
+				// LocateRow gives the same bins, and -1 for NaN.
+				probe = append(probe, math.NaN())
+				row := make([]int32, len(probe))
+				n, lo, hi := l.LocateRow(probe, row)
+				wantN, wantLo, wantHi := 0, math.Inf(1), math.Inf(-1)
+				for i, v := range probe {
+					want := -1
+					if !math.IsNaN(v) {
+						want = refLocate(d, v)
+						wantN, wantLo, wantHi = wantN+1, math.Min(wantLo, v), math.Max(wantHi, v)
+					}
+					if int(row[i]) != want {
+						t.Fatalf("LocateRow: %v in bin %d, want %d", v, row[i], want)
+					}
+				}
+				if n != wantN || lo != wantLo || hi != wantHi || math.Signbit(lo) && lo == 0 {
+					t.Errorf("LocateRow: %d values in [%v, %v], want %d in [%v, %v] (zero as +0)", n, lo, hi, wantN, wantLo, wantHi)
+				}
 			})
 		}
 	}

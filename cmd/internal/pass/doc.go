@@ -6,8 +6,14 @@
 // merged at the end. A cell is added once per nested sequence of extents
 // (extent.Family.Groups), to the smallest extent of the sequence holding
 // it, and the accumulators are merged outwards along each sequence after
-// the pass. Accumulators hold integer sums, so the result does not depend
-// on the number of workers or the order in which blocks finish.
+// the pass. Within a block, each row's runs of cells are overlaid into
+// segments that go to one same set of extents; a set of several extents
+// that holds many of the block's cells gets a shared accumulator
+// (metrics.Shared), so those cells are added once and the sums are merged
+// into each of those extents at the end of the block (block.go).
+// Accumulators hold integer sums, so the result does not depend on the
+// number of workers, the order in which blocks finish, or which cells were
+// shared.
 //
 // A model whose values are computed rather than read (Virtual: a Field
 // such as the distance-only null) goes through the same workers and code:

@@ -117,12 +117,24 @@ func Open(path string) (*Raster, error) {
 // value, and keeping both would let the order in which blocks reach a
 // worker decide which one a minimum or maximum reports.
 func (r *Raster) decode(buf []float64) {
-	plain := r.scale == 1 && r.offset == 0
+	nan := math.NaN()
+	if r.scale == 1 && r.offset == 0 {
+		nodata, has := r.nodata, r.hasNodata
+		for i, v := range buf {
+			switch {
+			case v-v != 0 || has && v == nodata: // v-v is NaN for NaN and ±Inf
+				buf[i] = nan
+			case v == 0:
+				buf[i] = 0 // -0 becomes +0
+			}
+		}
+		return
+	}
 	for i, v := range buf {
 		switch {
 		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && v == r.nodata:
 			buf[i] = math.NaN()
-		case !plain:
+		default:
 			buf[i] = v*r.scale + r.offset
 		}
 		if buf[i] == 0 {
@@ -451,7 +463,11 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 				if !st.AnyValid {
 					st.AnyValid = slices.ContainsFunc(b.buf, valid)
 				}
-				scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt)
+				if err := scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt); err != nil {
+					pt.err = err
+					failed.Store(true)
+					break
+				}
 				doneBlocks <- struct{}{}
 			}
 			pt.stats = st
@@ -492,21 +508,6 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	return out, stats, nil
 }
 
-// workerState is one worker's scratch for scoring blocks.
-type workerState struct {
-	buf     []float64
-	areas   []float64
-	weights []int64
-	bins    []int32 // per column of the block row: layout bin, -1 when not scored
-	in      []bool  // per column: in some member
-	span    extent.SpanScratch
-}
-
-func newWorkerState(bw, bh int) *workerState {
-	return &workerState{buf: make([]float64, bw*bh), weights: make([]int64, bw),
-		bins: make([]int32, bw), in: make([]bool, bw)}
-}
-
 // RowWeights fills weights (length c1-c0) with the integer area units of
 // cells c0 <= c < c1 of row, the weights the pass adds, using areas as
 // scratch, and returns both.
@@ -528,98 +529,3 @@ func RowWeights(g *extent.Grid, row, c0, c1 int, areas []float64, weights []int6
 
 // valid reports whether a decoded value is one to score.
 func valid(v float64) bool { return !math.IsNaN(v) }
-
-// scoreBlock adds every valid cell of b (decoded) to the accumulators of
-// the smallest member of each group holding it.
-func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) {
-	pv, validCells := opt.Preview, opt.Valid
-	x1 := b.x0 + b.w
-	weights, bins, in := ws.weights[:b.w], ws.bins[:b.w], ws.in[:b.w]
-	for y := 0; y < b.h; y++ {
-		row := b.y0 + y
-		base := row*g.Width + b.x0
-		vals := b.buf[y*b.w : (y+1)*b.w]
-		shown := vals
-		if b.shown != nil {
-			shown = b.shown[y*b.w : (y+1)*b.w]
-		}
-		if pv != nil {
-			if prow := pv.srcRow[row]; prow >= 0 {
-				for x, v := range shown {
-					if pc := pv.srcCol[b.x0+x]; pc >= 0 && valid(v) {
-						pv.Values[prow*pv.Width+pc] = v
-					}
-				}
-			}
-		}
-		// Cells in some member: the union of each group's largest member.
-		clear(in)
-		covered := false
-		for _, seq := range groups {
-			runs := fam.Span(seq[len(seq)-1], -1, row, b.x0, x1, &ws.span)
-			for i := 0; i < len(runs); i += 2 {
-				for x := int(runs[i]) - b.x0; x < int(runs[i+1])-b.x0; x++ {
-					in[x] = true
-				}
-				covered = true
-			}
-		}
-		if !covered {
-			continue
-		}
-		ws.areas, weights = RowWeights(g, row, b.x0, x1, ws.areas, weights)
-		if opt.Rows != nil {
-			opt.Rows(row, b.x0, shown, weights)
-		}
-		vword, vbits := -1, uint64(0)
-		for x, v := range vals {
-			bins[x] = -1
-			if !in[x] || !valid(v) {
-				continue
-			}
-			if validCells != nil {
-				// Bits are gathered per 64-bit word and set with one
-				// atomic OR per word (blocks of other workers may share
-				// the word at their edges).
-				i := base + x
-				if i>>6 != vword {
-					if vbits != 0 {
-						validCells.OrAtomic(vword, vbits)
-					}
-					vword, vbits = i>>6, 0
-				}
-				vbits |= 1 << (uint(i) & 63)
-			}
-			w := weights[x]
-			switch {
-			case st.Area == 0 || v < st.Min:
-				if st.Area == 0 {
-					st.Max = v
-				}
-				st.Min, st.FloorArea = v, w
-			case v == st.Min:
-				st.FloorArea += w
-			}
-			if v > st.Max {
-				st.Max = v
-			}
-			st.Area += w
-			bins[x] = int32(layout.Locate(v))
-		}
-		if vbits != 0 {
-			validCells.OrAtomic(vword, vbits)
-		}
-		for _, seq := range groups {
-			inner := -1
-			for _, k := range seq {
-				runs := fam.Span(k, inner, row, b.x0, x1, &ws.span)
-				acc := accs[k]
-				for i := 0; i < len(runs); i += 2 {
-					x0, x1 := int(runs[i])-b.x0, int(runs[i+1])-b.x0
-					acc.AddRow(bins[x0:x1], vals[x0:x1], weights[x0:x1])
-				}
-				inner = k
-			}
-		}
-	}
-}

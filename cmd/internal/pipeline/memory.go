@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 )
 
@@ -31,7 +32,9 @@ const blockCache = 64 << 20
 //	runs          extents x grid rows x 40 bytes (a row's slice header and,
 //	              typically, one or two runs of two int32 each)
 //	valid         1 bit per grid cell
-//	accumulators  workers x extents x (2 x layout values + 1 + 4096) bins x 16 bytes
+//	accumulators  workers x (extents + pass.MaxShared) x (2 x layout values
+//	              + 1 + 4096) bins x 16 bytes (each member's, and the shared
+//	              sums of a block)
 //	blocks        workers x one block buffer of blockCells float64 values,
 //	              plus GDAL's 64 MB block cache
 //	points        about 400 bytes per occurrence record (records, lists, results)
@@ -42,7 +45,7 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 	return memoryUse{
 		Runs:         int64(extents) * rows * 40,
 		Valid:        cells / 8,
-		Accumulators: int64(workers) * int64(extents) * bins * 16,
+		Accumulators: int64(workers) * int64(extents+pass.MaxShared) * bins * 16,
 		Blocks:       int64(workers)*int64(blockCells)*8 + blockCache,
 		Points:       400 * int64(points),
 	}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"slices"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -150,8 +151,13 @@ func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 // distance-only null's histogram floor).
 func (s *Study) layout(p *Plan, opts ...metrics.LayoutOption) error {
 	m := p.Model
-	vals, valid, err := p.src.Sample(s.grid, s.cell)
-	if err != nil {
+	var vals []float64
+	var valid []bool
+	var err error
+	if p.Index == 0 && s.firstVals != nil {
+		// Read when the points were placed.
+		vals, valid = slices.Clone(s.firstVals), slices.Clone(s.firstValid)
+	} else if vals, valid, err = p.src.Sample(s.grid, s.cell); err != nil {
 		return fault.BadInput(err)
 	}
 	p.vals, p.valid = vals, valid

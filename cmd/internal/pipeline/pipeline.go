@@ -69,13 +69,17 @@ type Study struct {
 	points []report.Point
 	lonlat []extent.LonLat // per point
 	cell   []int           // per point, -1 outside
-	fam    *extent.Family
-	res    *report.Results
-	dir    *outdir.Dir
-	ownDir bool
-	stage  string
-	valid  extent.Valid // nil until known: the family is then unclipped
-	nWarn  int          // family warnings already reported
+	// firstVals, firstValid: the first model's values at cell, read once
+	// when the points are placed and reused by its pass's layout.
+	firstVals  []float64
+	firstValid []bool
+	fam        *extent.Family
+	res        *report.Results
+	dir        *outdir.Dir
+	ownDir     bool
+	stage      string
+	valid      extent.Valid // nil until known: the family is then unclipped
+	nWarn      int          // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator

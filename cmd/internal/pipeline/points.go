@@ -179,7 +179,7 @@ func (s *Study) readPoints() error {
 		return fault.BadInput(err)
 	}
 	defer r.Close()
-	_, pointValid, err := r.Sample(g, s.cell)
+	pointVals, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
 		return fault.BadInput(err)
 	}
@@ -201,6 +201,15 @@ func (s *Study) readPoints() error {
 	}
 	pl := place.Place(rr, !o.NoThin)
 	s.cell = pl.Cell
+	// The first model's values at the scored cells (a cell not scored is
+	// -1, which Sample reports as 0, not valid): its pass does not read
+	// them again.
+	s.firstVals, s.firstValid = pointVals, pointValid
+	for i, c := range s.cell {
+		if c < 0 {
+			s.firstVals[i], s.firstValid[i] = 0, false
+		}
+	}
 	where := func(i int) string {
 		p := s.points[i]
 		return fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat)
