@@ -7,16 +7,20 @@ import (
 	"areasweep/extent/geodesy"
 )
 
-// Binner places a value in the bins a scoring pass keeps apart: a metrics
-// Layout's exact bin and the value's bin on the layout's histogram floor
-// grid, whose edges include every edge of every fine histogram on the
-// layout (metrics.WithHistFloor; the pass's adapter is in
-// cmd/internal/pass).
-// Locate must be monotone: v1 <= v2 implies each returned index of v1 is
-// at most that of v2, so that a value between two values that share their
-// bins shares them too.
+// Binner tells which values a scoring pass keeps apart: a metrics
+// Layout's exact bins and the bins of the layout's histogram floor grid,
+// whose edges include every edge of every fine histogram on the layout
+// (metrics.WithHistFloor; the pass's adapter is in cmd/internal/pass).
+// Cell returns the set of values that share every one of those bins with
+// v, which is an interval (an intersection of intervals): u is in it iff
+//
+//	lo < u < hi,  or  u == lo when closed.
+//
+// So two values u1 <= u2 share their bins iff u1 is in the cell of u2, or
+// u2 in the cell of u1 (then u2 < hi suffices), and a bracketer that
+// remembers the last cell places most brackets without asking again.
 type Binner = interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
 }
 
 // BracketTol is our choice of the largest relative error of the midpoint
@@ -203,7 +207,8 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	if cap(sc.pending) < n {
 		sc.pending = make([]bool, n)
 	}
-	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n]}
+	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
+		cellLo: math.NaN(), cellHi: math.NaN()}
 	for sr := floorDiv(y0, SuperTile); sr*SuperTile < y0+h; sr++ {
 		for scol := floorDiv(x0, SuperTile); scol*SuperTile < x0+w; scol++ {
 			b.super(sr, scol)
@@ -233,6 +238,9 @@ type bracketer struct {
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
 	pending  []bool // per block cell: left to the patches
+	// The last cell of bins asked for (Binner.Cell); NaN ends hold nothing.
+	cellLo, cellHi float64
+	cellClosed     bool
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -511,11 +519,15 @@ func sortSites(m []anchorSite) {
 	}
 }
 
-// sameBins reports whether the values -hi and -lo share their bins.
+// sameBins reports whether the values -hi and -lo (lo <= hi) share their
+// bins: whether -lo lies in the cell of -hi (see Binner), asking bins for
+// that cell only when -hi is outside the last one.
 func (b *bracketer) sameBins(lo, hi float64) bool {
-	b1, h1 := b.bins.Locate(0 - hi)
-	b2, h2 := b.bins.Locate(0 - lo)
-	return b1 == b2 && h1 == h2
+	u1, u2 := 0-hi, 0-lo
+	if !((u1 > b.cellLo || b.cellClosed && u1 == b.cellLo) && u1 < b.cellHi) {
+		b.cellLo, b.cellHi, b.cellClosed = b.bins.Cell(u1)
+	}
+	return u2 < b.cellHi
 }
 
 // taylorBracket returns bounds on the distance from the cell at geodesic
@@ -584,7 +596,7 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 // both ends in the same bins of bins, lo[i] == hi[i] (the exact value of
 // Fill) where the cell was computed exactly, NaN where Fill gives NaN.
 func (f *Field) Bounds(x0, y0, w, h int, need []uint64, bins interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
 }, lo, hi []float64) {
 	f.Bracket(x0, y0, w, h, need, bins, lo, hi)
 	for i := range lo[:w*h] {

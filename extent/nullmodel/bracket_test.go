@@ -9,11 +9,38 @@ import (
 	"areasweep/metrics"
 )
 
-// floorBins is the Binner of a pass on a floored layout: exact bin and
-// floor-grid bin (the pass's own adapter lives in cmd/internal/pass).
-type floorBins struct{ l *metrics.Layout }
+// floorBins is the Binner of a pass on a floored layout (the pass's own
+// adapter lives in cmd/internal/pass, tested there against Locate and
+// FloorBin): Locate gives the exact bin and floor-grid bin of a value, Cell
+// the interval of values sharing both.
+type floorBins struct {
+	l *metrics.Layout
+	d []float64
+}
+
+func newFloorBins(l *metrics.Layout) floorBins { return floorBins{l, l.Values()} }
 
 func (b floorBins) Locate(v float64) (bin, hist int) { return b.l.Locate(v), int(b.l.FloorBin(v)) }
+
+// Cell intersects the exact bin (the value d_j, or the open interval
+// between two values) with the floor bin [k 2^e, (k+1) 2^e).
+func (b floorBins) Cell(v float64) (lo, hi float64, closed bool) {
+	bin := b.l.Locate(v)
+	j := bin >> 1
+	if bin&1 == 1 {
+		return b.d[j], b.d[j], true
+	}
+	e, _ := b.l.HistFloor()
+	k := b.l.FloorBin(v)
+	lo, hi, closed = math.Ldexp(float64(k), e), math.Ldexp(float64(k+1), e), true
+	if j > 0 && b.d[j-1] >= lo {
+		lo, closed = b.d[j-1], false
+	}
+	if j < len(b.d) && b.d[j] < hi {
+		hi = b.d[j]
+	}
+	return lo, hi, closed
+}
 
 // testLayout returns the bins of a layout like a pass's for the null: the
 // values at every 37th cell (as presence values would be) and 4096
@@ -30,7 +57,7 @@ func testLayout(t testing.TB, dist []float64, far float64) floorBins {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return floorBins{l}
+	return newFloorBins(l)
 }
 
 // TestBracketContainsDistance checks Bracket against Distances on
@@ -162,7 +189,7 @@ func BenchmarkFieldBracket(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			layout := floorBins{l}
+			layout := newFloorBins(l)
 			lo, hi := make([]float64, 240*240), make([]float64, 240*240)
 			b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
 				b.ReportAllocs()

@@ -20,15 +20,16 @@ type Field interface {
 	Fill(x0, y0, w, h int, need []uint64, dst []float64)
 }
 
-// Binner places a value in the bins a pass keeps apart: its exact bin and
-// its histogram bin (floorBinner on a floored *metrics.Layout).
+// Binner tells which values a pass keeps apart: Cell(v) is the interval of
+// values that share v's exact bin and its histogram bin (see
+// nullmodel.Binner; floorBinner on a floored *metrics.Layout).
 type Binner = interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
 }
 
 // floorBinner is the Binner of a layout with a histogram floor e
-// (metrics.WithHistFloor): the exact bin of v and its bin on the floor
-// grid, floor(v * 2^-e).
+// (metrics.WithHistFloor): the values that share v's exact bin and its bin
+// on the floor grid, floor(v * 2^-e).
 //
 // Why this is enough although each accumulator chooses its histogram grid
 // from its own cells during the pass: every accumulator on the layout uses
@@ -38,17 +39,44 @@ type Binner = interface {
 // a cell's bounds have the same exact bin and the same floor bin, so do
 // the midpoint and the exact value (bins are intervals), in every
 // accumulator at every level it may reach.
-type floorBinner struct{ l *metrics.Layout }
+type floorBinner struct {
+	l *metrics.Layout
+	d []float64 // the layout's values, d_0 < ... < d_{m-1}
+	e int       // the floor exponent
+}
 
-// Locate returns the exact bin of v and its floor-grid bin.
-func (b floorBinner) Locate(v float64) (bin, hist int) {
-	return b.l.Locate(v), int(b.l.FloorBin(v))
+// newFloorBinner returns the Binner of a floored layout.
+func newFloorBinner(l *metrics.Layout) floorBinner {
+	e, _ := l.HistFloor()
+	return floorBinner{l: l, d: l.Values(), e: e}
+}
+
+// Cell returns the values that share v's bins (see nullmodel.Binner): the
+// exact bin of v is {d_j} (Locate odd, 2j+1) or the open interval
+// (d_{j-1}, d_j) (Locate even, 2j; no end at j = 0 or m), its floor bin
+// [k 2^e, (k+1) 2^e) with k = FloorBin(v) (edges exact: k < 2^53), and the
+// cell their intersection.
+func (b floorBinner) Cell(v float64) (lo, hi float64, closed bool) {
+	bin := b.l.Locate(v)
+	j := bin >> 1
+	if bin&1 == 1 {
+		return b.d[j], b.d[j], true
+	}
+	k := b.l.FloorBin(v)
+	lo, hi, closed = math.Ldexp(float64(k), b.e), math.Ldexp(float64(k+1), b.e), true
+	if j > 0 && b.d[j-1] >= lo {
+		lo, closed = b.d[j-1], false
+	}
+	if j < len(b.d) && b.d[j] < hi {
+		hi = b.d[j]
+	}
+	return lo, hi, closed
 }
 
 // BoundedField is a Field that can bound its values instead of computing
 // each one: Bounds sets lo[i] <= value <= hi[i] for the cells Fill would
-// compute, with bins.Locate(lo[i]) == bins.Locate(hi[i]) (Locate is
-// monotone, so the value shares those bins), lo[i] == hi[i] equal to Fill's
+// compute, with lo[i] and hi[i] in the same cell of bins (bins.Cell; a
+// cell is an interval, so the value shares their bins), lo[i] == hi[i] equal to Fill's
 // value where it computed the cell, NaN where Fill gives NaN. A cell's
 // bounds must not depend on the block. A Virtual scores such a field
 // exactly as it would score Fill's values: see Virtual.
@@ -264,10 +292,14 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 	if _, floored := layout.HistFloor(); !floored {
 		bf = nil // histogram edges unknown before the pass: compute every cell
 	}
+	var fb floorBinner
+	if bf != nil {
+		fb = newFloorBinner(layout)
+	}
 	open := func() (Source, error) {
 		src := &virtualSource{v: v, fam: fam, groups: groups, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}
 		if bf != nil {
-			src.bf, src.bins = bf, floorBinner{layout}
+			src.bf, src.bins = bf, fb
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
 			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))

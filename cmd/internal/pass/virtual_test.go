@@ -125,7 +125,7 @@ func TestVirtualEqualsRaster(t *testing.T) {
 	// Most cells must take the bounded path (midpoints), or this test
 	// would not test it.
 	lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
-	f.Bounds(0, 0, g.Width, g.Height, nil, floorBinner{layout}, lo, hi)
+	f.Bounds(0, 0, g.Width, g.Height, nil, newFloorBinner(layout), lo, hi)
 	bounded := 0
 	for i := range lo {
 		if lo[i] != hi[i] {
@@ -436,6 +436,40 @@ func bruteTally(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) fu
 				}
 			}
 			bg.Add(k, d, wk)
+		}
+	}
+}
+
+// TestFloorBinnerCell checks floorBinner.Cell against the layout's Locate
+// and FloorBin, which define the bins: for values drawn at, next to and
+// between the layout's values and the floor grid's edges, v is in its own
+// cell, and a second value u is in v's cell iff it has v's exact bin and
+// floor bin.
+func TestFloorBinnerCell(t *testing.T) {
+	// Layout values on and off the floor grid of 2^4 = 16: the edge 32
+	// is a value, so the cell [32, 48) loses its closed end.
+	layout, err := metrics.NewLayout([]float64{-100, -37.5, -5, 32, 33, 90}, 64, metrics.WithHistFloor(4))
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := newFloorBinner(layout)
+	var probes []float64
+	for _, x := range []float64{-112, -100, -96, -37.5, -32, -16, -5, 0, 16, 32, 33, 48, 90, 96} {
+		probes = append(probes, x, math.Nextafter(x, math.Inf(-1)), math.Nextafter(x, math.Inf(1)), x+0.25, x-3.5)
+	}
+	probes = append(probes, math.Copysign(0, -1), -1e-310)
+	in := func(u, lo, hi float64, closed bool) bool { return lo < u && u < hi || closed && u == lo }
+	for _, v := range probes {
+		lo, hi, closed := b.Cell(v)
+		if !in(v, lo, hi, closed) {
+			t.Errorf("%v: not in its own cell (%v, %v) closed %v", v, lo, hi, closed)
+		}
+		bv, fv := layout.Locate(v), layout.FloorBin(v)
+		for _, u := range probes {
+			same := layout.Locate(u) == bv && layout.FloorBin(u) == fv
+			if got := in(u, lo, hi, closed); got != same {
+				t.Errorf("%v in the cell of %v (%v, %v) closed %v: %v, bins say %v", u, v, lo, hi, closed, got, same)
+			}
 		}
 	}
 }
