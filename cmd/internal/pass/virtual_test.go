@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"math"
@@ -179,19 +180,27 @@ func TestVirtualEqualsRaster(t *testing.T) {
 
 // TestRowsHook checks that Options.Rows sees every row of the grid once with
 // the values and weights the pass uses: summing weight over each member's
-// valid cells (Family.Has) gives each accumulator's area.
+// valid cells (Family.Has) gives each accumulator's area. With the west
+// half declared a chain inside the whole (so one nested group), the run's
+// tally (tallyRows: ring cells, added up when read) encodes byte for byte
+// as the brute-force one.
 func TestRowsHook(t *testing.T) {
 	g, v, _, fam := nullSetup(t)
+	fam.Chains = map[string][]int{"west-in-all": {1, 0}}
+	if gr := fam.Groups(); len(gr) != 1 || len(gr[0]) != 2 {
+		t.Fatalf("groups %v, want one sequence of two nested members", gr)
+	}
 	layout, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
 	}
-	var bg nullmodel.Background
+	var bg, rings nullmodel.Background
 	seen := make([]int, g.Height)
 	var mu sync.Mutex
-	tally := bruteTally(g, fam, &bg)
+	tally, ringTally := bruteTally(g, fam, &bg), tallyRows(g, fam, &rings)
 	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
 		tally(row, c0, vals, w)
+		ringTally(row, c0, vals, w)
 		mu.Lock()
 		seen[row] += len(vals)
 		mu.Unlock()
@@ -209,6 +218,9 @@ func TestRowsHook(t *testing.T) {
 		if bg.Area(k) != accs[k].Area() {
 			t.Errorf("extent %d: rows hook area %d, accumulator %d", k, bg.Area(k), accs[k].Area())
 		}
+	}
+	if !bytes.Equal(nullmodel.EncodeBackground(&rings), nullmodel.EncodeBackground(&bg)) {
+		t.Error("the ring tally of the nested group differs from the brute-force tally")
 	}
 }
 
@@ -280,14 +292,18 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 	return g, v, layout, fullFamily(g, 8)
 }
 
-// tallyRows returns a rows hook that adds every row's distances to bg for
-// every member holding them, as the run's sorting-bias tally does.
+// tallyRows returns a rows hook that adds every row's distances to bg as
+// the run's sorting-bias tally does: each cell to the smallest member of
+// each nested group holding it, the rings added up when bg is read
+// (Background.Nest).
 func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
 	type scratch struct {
 		span extent.SpanScratch
 		row  nullmodel.Row
 		d    []float64
 	}
+	groups := fam.Groups()
+	bg.Nest(groups)
 	pool := sync.Pool{New: func() any { return new(scratch) }}
 	return func(row, c0 int, vals []float64, wts []int64) {
 		sc := pool.Get().(*scratch)
@@ -300,10 +316,14 @@ func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) fun
 		r.Set(sc.d, wts)
 		t := bg.Tally()
 		defer t.Done()
-		for k := range fam.Members {
-			runs := fam.Span(k, -1, row, c0, c0+len(vals), span)
-			for i := 0; i < len(runs); i += 2 {
-				t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
+		for _, seq := range groups {
+			inner := -1
+			for _, k := range seq {
+				runs := fam.Span(k, inner, row, c0, c0+len(vals), span)
+				for i := 0; i < len(runs); i += 2 {
+					t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
+				}
+				inner = k
 			}
 		}
 	}

@@ -56,8 +56,12 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	dn := &distanceNull{ix: ix}
 	fam := s.fam
 	// The row's distances (minus the null's values) are prepared once; each
-	// ok member's cells of the row, taken from its runs, go to its own
-	// tally.
+	// cell goes to the smallest ok member of each nested group that holds
+	// it (its ring, from the runs), and the tally adds the rings up each
+	// group when read (Background.Nest), as the pass does with its
+	// accumulators.
+	groups := fam.Groups()
+	dn.bg.Nest(groups)
 	rows := func(row, c0 int, vals []float64, w []int64) {
 		sc := tallyPool.Get().(*tallyScratch)
 		defer tallyPool.Put(sc)
@@ -68,13 +72,14 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		sc.row.Set(sc.d, w)
 		t := dn.bg.Tally()
 		defer t.Done()
-		for k, mem := range fam.Members {
-			if mem.Status != vocab.StatusOK {
-				continue
-			}
-			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
-			for i := 0; i < len(runs); i += 2 {
-				t.Add(k, &sc.row, int(runs[i])-c0, int(runs[i+1])-c0)
+		for _, seq := range groups {
+			inner := -1
+			for _, k := range seq {
+				runs := fam.Span(k, inner, row, c0, c0+len(vals), &sc.span)
+				for i := 0; i < len(runs); i += 2 {
+					t.Add(k, &sc.row, int(runs[i])-c0, int(runs[i+1])-c0)
+				}
+				inner = k
 			}
 		}
 	}
