@@ -21,15 +21,17 @@ type Field interface {
 }
 
 // Binner tells which values a pass keeps apart: Cell(v) is the interval of
-// values that share v's exact bin and its histogram bin (see
+// values that share v's exact bin, FloorScale the scale 2^-e of the floor
+// grid whose bins floor(v * 2^-e) they must share too (see
 // nullmodel.Binner; floorBinner on a floored *metrics.Layout).
 type Binner = interface {
 	Cell(v float64) (lo, hi float64, closed bool)
+	FloorScale() float64
 }
 
 // floorBinner is the Binner of a layout with a histogram floor e
-// (metrics.WithHistFloor): the values that share v's exact bin and its bin
-// on the floor grid, floor(v * 2^-e).
+// (metrics.WithHistFloor): the values that share v's exact bin, and the
+// floor grid, whose bin of v is floor(v * 2^-e) (Layout.FloorBin).
 //
 // Why this is enough although each accumulator chooses its histogram grid
 // from its own cells during the pass: every accumulator on the layout uses
@@ -42,36 +44,36 @@ type Binner = interface {
 type floorBinner struct {
 	l *metrics.Layout
 	d []float64 // the layout's values, d_0 < ... < d_{m-1}
-	e int       // the floor exponent
+	s float64   // 2^-e for the floor exponent e
 }
 
 // newFloorBinner returns the Binner of a floored layout.
 func newFloorBinner(l *metrics.Layout) floorBinner {
 	e, _ := l.HistFloor()
-	return floorBinner{l: l, d: l.Values(), e: e}
+	return floorBinner{l: l, d: l.Values(), s: math.Ldexp(1, -e)}
 }
 
-// Cell returns the values that share v's bins (see nullmodel.Binner): the
-// exact bin of v is {d_j} (Locate odd, 2j+1) or the open interval
-// (d_{j-1}, d_j) (Locate even, 2j; no end at j = 0 or m), its floor bin
-// [k 2^e, (k+1) 2^e) with k = FloorBin(v) (edges exact: k < 2^53), and the
-// cell their intersection.
+// Cell returns the values that share v's exact bin (see
+// nullmodel.Binner): {d_j} when Locate gives 2j+1 (v is d_j), the open
+// interval (d_{j-1}, d_j) when it gives 2j (no end at j = 0 or m).
 func (b floorBinner) Cell(v float64) (lo, hi float64, closed bool) {
 	bin := b.l.Locate(v)
 	j := bin >> 1
 	if bin&1 == 1 {
 		return b.d[j], b.d[j], true
 	}
-	k := b.l.FloorBin(v)
-	lo, hi, closed = math.Ldexp(float64(k), b.e), math.Ldexp(float64(k+1), b.e), true
-	if j > 0 && b.d[j-1] >= lo {
-		lo, closed = b.d[j-1], false
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if j > 0 {
+		lo = b.d[j-1]
 	}
-	if j < len(b.d) && b.d[j] < hi {
+	if j < len(b.d) {
 		hi = b.d[j]
 	}
-	return lo, hi, closed
+	return lo, hi, false
 }
+
+// FloorScale returns 2^-e for the layout's floor exponent e.
+func (b floorBinner) FloorScale() float64 { return b.s }
 
 // BoundedField is a Field that can bound its values instead of computing
 // each one: Bounds sets lo[i] <= value <= hi[i] for the cells Fill would

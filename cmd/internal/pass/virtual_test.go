@@ -460,19 +460,21 @@ func bruteTally(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) fu
 	}
 }
 
-// TestFloorBinnerCell checks floorBinner.Cell against the layout's Locate
-// and FloorBin, which define the bins: for values drawn at, next to and
+// TestFloorBinnerCell checks floorBinner against the layout's Locate and
+// FloorBin, which define the bins: for values drawn at, next to and
 // between the layout's values and the floor grid's edges, v is in its own
-// cell, and a second value u is in v's cell iff it has v's exact bin and
-// floor bin.
+// cell, a second value u is in v's cell iff Locate places both in the
+// same exact bin, and the floor bins of nullmodel's rule (floor(v * s),
+// -1 for a product underflowing to -0) are FloorBin's.
 func TestFloorBinnerCell(t *testing.T) {
-	// Layout values on and off the floor grid of 2^4 = 16: the edge 32
-	// is a value, so the cell [32, 48) loses its closed end.
 	layout, err := metrics.NewLayout([]float64{-100, -37.5, -5, 32, 33, 90}, 64, metrics.WithHistFloor(4))
 	if err != nil {
 		t.Fatal(err)
 	}
 	b := newFloorBinner(layout)
+	if b.FloorScale() != 1.0/16 {
+		t.Fatalf("floor scale %v, want 2^-4", b.FloorScale())
+	}
 	var probes []float64
 	for _, x := range []float64{-112, -100, -96, -37.5, -32, -16, -5, 0, 16, 32, 33, 48, 90, 96} {
 		probes = append(probes, x, math.Nextafter(x, math.Inf(-1)), math.Nextafter(x, math.Inf(1)), x+0.25, x-3.5)
@@ -484,12 +486,17 @@ func TestFloorBinnerCell(t *testing.T) {
 		if !in(v, lo, hi, closed) {
 			t.Errorf("%v: not in its own cell (%v, %v) closed %v", v, lo, hi, closed)
 		}
-		bv, fv := layout.Locate(v), layout.FloorBin(v)
 		for _, u := range probes {
-			same := layout.Locate(u) == bv && layout.FloorBin(u) == fv
-			if got := in(u, lo, hi, closed); got != same {
-				t.Errorf("%v in the cell of %v (%v, %v) closed %v: %v, bins say %v", u, v, lo, hi, closed, got, same)
+			if got, same := in(u, lo, hi, closed), layout.Locate(u) == layout.Locate(v); got != same {
+				t.Errorf("%v in the cell of %v (%v, %v) closed %v: %v, Locate says %v", u, v, lo, hi, closed, got, same)
 			}
+		}
+		x := math.Floor(v * b.FloorScale())
+		if x == 0 && v < 0 {
+			x = -1
+		}
+		if x != float64(layout.FloorBin(v)) {
+			t.Errorf("%v: floor bin %v, FloorBin %d", v, x, layout.FloorBin(v))
 		}
 	}
 }
