@@ -3,6 +3,7 @@ package pass
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
@@ -139,6 +140,7 @@ type virtualSource struct {
 	outer  []int // the largest member of each group: their union is every member's cells
 	need   []uint64
 	span   extent.SpanScratch
+	prev   []int32 // the runs walked last in the row (markNeed, exactExtremes)
 	// bounded path
 	bf           BoundedField
 	bins         Binner
@@ -193,16 +195,23 @@ func (s *virtualSource) shownValues(n int) []float64 {
 }
 
 // markNeed sets need[y*w+x] for every cell of the block at (x0, y0) of w x
-// h cells that lies in some member.
+// h cells that lies in some member. A group whose runs in a row are those
+// of the group before (often the case: several extents covering the row)
+// is not walked again.
 func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 	for y := range h {
-		for _, k := range s.outer {
+		s.prev = s.prev[:0]
+		for g, k := range s.outer {
 			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
+			if g > 0 && slices.Equal(runs, s.prev) {
+				continue
+			}
 			for i := 0; i < len(runs); i += 2 {
 				for x := int(runs[i]) - x0; x < int(runs[i+1])-x0; x++ {
 					need[y*w+x] = 1
 				}
 			}
+			s.prev = append(s.prev[:0], runs...)
 		}
 	}
 }
@@ -211,8 +220,9 @@ func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 // the block that may hold the smallest or the largest value of a member
 // it is added to (see Virtual). A first walk finds each member's smallest
 // upper and largest lower bound in the block and, per row, its smallest
-// lower and largest upper bound; the second walk visits only the rows
-// that can hold such a cell.
+// lower and largest upper bound (reusing the previous member's figures
+// when its runs in the row are the same: minima and maxima of the same
+// cells); the second walk visits only the rows that can hold such a cell.
 func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
 	nm := len(s.minHi)
 	for k := range s.minHi {
@@ -223,30 +233,38 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
 	}
 	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
 	for y := range h {
+		s.prev = s.prev[:0]
+		first := true
+		var mn, mx, rl, rh float64
 		for _, seq := range s.groups {
 			inner := -1
 			for _, k := range seq {
 				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
-				mn, mx := s.minHi[k], s.maxLo[k]
-				rl, rh := math.Inf(1), math.Inf(-1)
-				for j := 0; j < len(runs); j += 2 {
-					// NaN compares false: cells with no value are left out.
-					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
-						if hi[i] < mn {
-							mn = hi[i]
-						}
-						if lo[i] > mx {
-							mx = lo[i]
-						}
-						if lo[i] < rl {
-							rl = lo[i]
-						}
-						if hi[i] > rh {
-							rh = hi[i]
+				if first || !slices.Equal(runs, s.prev) {
+					mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+					for j := 0; j < len(runs); j += 2 {
+						a, b := y*w+int(runs[j])-x0, y*w+int(runs[j+1])-x0
+						// NaN compares false: cells with no value are left out.
+						for i, l := range lo[a:b] {
+							u := hi[a+i]
+							if u < mn {
+								mn = u
+							}
+							if l > mx {
+								mx = l
+							}
+							if l < rl {
+								rl = l
+							}
+							if u > rh {
+								rh = u
+							}
 						}
 					}
+					s.prev = append(s.prev[:0], runs...)
+					first = false
 				}
-				s.minHi[k], s.maxLo[k] = mn, mx
+				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
 				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
 				inner = k
 			}
