@@ -176,6 +176,51 @@ func (t Tally) Done() { t.sh.mu.Unlock() }
 
 // Add adds cells lo <= i < hi of row r to extent k >= 0.
 func (t Tally) Add(k int, r *Row, lo, hi int) {
+	e := t.ext(k)
+	t.runSums(e, r, lo, hi)
+	bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], e.hist
+	for i, j := range bins {
+		if j >= 0 {
+			hist[j] += ws[i]
+		}
+	}
+}
+
+// AddAll adds cells lo <= i < hi of row r to each extent of ks (each >= 0,
+// none twice), walking the cells once.
+func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
+	switch len(ks) {
+	case 0:
+		return
+	case 1:
+		t.Add(ks[0], r, lo, hi)
+		return
+	}
+	var hists [8][]int64
+	for len(ks) > 0 {
+		n := min(len(ks), len(hists))
+		for q, k := range ks[:n] {
+			e := t.ext(k)
+			t.runSums(e, r, lo, hi)
+			hists[q] = e.hist
+		}
+		hs := hists[:n]
+		bins, ws := r.bin[lo:hi], r.w[lo:hi]
+		for i, j := range bins {
+			if j < 0 {
+				continue
+			}
+			w := ws[i]
+			for _, h := range hs {
+				h[j] += w
+			}
+		}
+		ks = ks[n:]
+	}
+}
+
+// ext returns extent k's partial sums, made on first use.
+func (t Tally) ext(k int) *bgExtent {
 	sh := t.sh
 	if k >= len(sh.ext) {
 		sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
@@ -184,6 +229,11 @@ func (t Tally) Add(k int, r *Row, lo, hi int) {
 	if e.hist == nil {
 		e.hist = make([]int64, histLen)
 	}
+	return e
+}
+
+// runSums adds the area and distance sums of cells lo <= i < hi of r to e.
+func (t Tally) runSums(e *bgExtent, r *Row, lo, hi int) {
 	// The run's sums from the prefix sums (128-bit differences wrap as the
 	// sums do), then its cells' histogram bins.
 	e.area += r.pa[hi] - r.pa[lo]
@@ -192,12 +242,6 @@ func (t Tally) Add(k int, r *Row, lo, hi int) {
 	var carry uint64
 	e.sumLo, carry = bits.Add64(e.sumLo, dl, 0)
 	e.sumHi, _ = bits.Add64(e.sumHi, dh, carry)
-	bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], e.hist
-	for i, j := range bins {
-		if j >= 0 {
-			hist[j] += ws[i]
-		}
-	}
 }
 
 // get returns extent k's sums, merging the partial sums at the first call

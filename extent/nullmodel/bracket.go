@@ -18,29 +18,14 @@ import (
 //
 // so two values u1 <= u2 share it iff u2 < hi of u1's cell, and a
 // bracketer that remembers the last cell places most brackets without
-// asking again. FloorScale returns 2^-e for the floor grid of exponent e:
-// u1 and u2 share their floor bin iff floorBin(u1, s) == floorBin(u2, s).
+// asking again. FloorScale returns s = 2^-e for the floor grid of
+// exponent e, whose bin of v is floor(v s), as metrics.Layout.FloorBin
+// computes it: exact (a power of two only moves the binary point), -0
+// counted as +0, and -1 for a tiny negative v whose product underflows to
+// -0.
 type Binner = interface {
 	Cell(v float64) (lo, hi float64, closed bool)
 	FloorScale() float64
-}
-
-// floorBin returns the bin of v on the floor grid of scale s = 2^-e,
-// floor(v s), as metrics.Layout.FloorBin computes it: exact (a power of
-// two only moves the binary point), -0 counted as +0, and -1 for a tiny
-// negative v whose product underflows to -0.
-func floorBin(v, s float64) int64 {
-	x := v * s
-	if x == 0 && v < 0 {
-		return -1
-	}
-	// floor(x) from the truncation (|x| < 2^63 here: the layout keeps
-	// bin numbers below 2^51).
-	i := int64(x)
-	if float64(i) > x {
-		i--
-	}
-	return i
 }
 
 // BracketTol is our choice of the largest relative error of the midpoint
@@ -719,7 +704,17 @@ func sortSites(m []anchorSite) {
 // Binner), which bins is asked for only when -hi is outside the last one.
 func (b *bracketer) sameBins(lo, hi float64) bool {
 	u1, u2 := 0-hi, 0-lo
-	if floorBin(u1, b.scale) != floorBin(u2, b.scale) {
+	// The floor bin k of u1 (floorBin; u2 >= u1 is in a bin >= k): u2
+	// shares it iff u2 s < k + 1, exact since s is a power of two.
+	x, y := u1*b.scale, u2*b.scale
+	k := math.Floor(x)
+	if x == 0 && u1 < 0 {
+		k = -1 // underflow: bin -1
+	}
+	if y == 0 && u2 < 0 {
+		y = -0.5 // underflow: bin -1
+	}
+	if !(y < k+1) {
 		return false
 	}
 	if !((u1 > b.cellLo || b.cellClosed && u1 == b.cellLo) && u1 < b.cellHi) {

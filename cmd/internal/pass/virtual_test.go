@@ -180,47 +180,61 @@ func TestVirtualEqualsRaster(t *testing.T) {
 
 // TestRowsHook checks that Options.Rows sees every row of the grid once with
 // the values and weights the pass uses: summing weight over each member's
-// valid cells (Family.Has) gives each accumulator's area. With the west
-// half declared a chain inside the whole (so one nested group), the run's
-// tally (tallyRows: ring cells, added up when read) encodes byte for byte
-// as the brute-force one.
+// valid cells (Family.Has) gives each accumulator's area. The run's tally
+// (NullTally: ring cells, added up when read; members with the same runs
+// in a row added together) encodes byte for byte as the brute-force one,
+// on nullSetup's family with the west half declared a chain inside the
+// whole (one nested group), and on one whose first two members are the
+// same cells (one walk for both).
 func TestRowsHook(t *testing.T) {
-	g, v, _, fam := nullSetup(t)
-	fam.Chains = map[string][]int{"west-in-all": {1, 0}}
-	if gr := fam.Groups(); len(gr) != 1 || len(gr[0]) != 2 {
+	g, v, _, chained := nullSetup(t)
+	chained.Chains = map[string][]int{"west-in-all": {1, 0}}
+	if gr := chained.Groups(); len(gr) != 1 || len(gr[0]) != 2 {
 		t.Fatalf("groups %v, want one sequence of two nested members", gr)
 	}
+	mask := make([]uint64, g.Cells())
+	for i := range mask {
+		if i%97 != 0 {
+			mask[i] = 3
+			if i%g.Width < g.Width/3 {
+				mask[i] |= 4
+			}
+		}
+	}
+	twins := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
 	layout, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
 	}
-	var bg, rings nullmodel.Background
-	seen := make([]int, g.Height)
-	var mu sync.Mutex
-	tally, ringTally := bruteTally(g, fam, &bg), tallyRows(g, fam, &rings)
-	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
-		tally(row, c0, vals, w)
-		ringTally(row, c0, vals, w)
-		mu.Lock()
-		seen[row] += len(vals)
-		mu.Unlock()
-	}}
-	accs, _, err := v.Score(g, fam, layout, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for r, n := range seen {
-		if n != g.Width {
-			t.Fatalf("row %d: %d cells seen, want %d", r, n, g.Width)
+	for name, fam := range map[string]*extent.Family{"chained": chained, "twins": twins} {
+		var bg, rings nullmodel.Background
+		seen := make([]int, g.Height)
+		var mu sync.Mutex
+		tally, ringTally := bruteTally(g, fam, &bg), NullTally(fam, &rings)
+		opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
+			tally(row, c0, vals, w)
+			ringTally(row, c0, vals, w)
+			mu.Lock()
+			seen[row] += len(vals)
+			mu.Unlock()
+		}}
+		accs, _, err := v.Score(g, fam, layout, opt)
+		if err != nil {
+			t.Fatal(err)
 		}
-	}
-	for k := range accs {
-		if bg.Area(k) != accs[k].Area() {
-			t.Errorf("extent %d: rows hook area %d, accumulator %d", k, bg.Area(k), accs[k].Area())
+		for r, n := range seen {
+			if n != g.Width {
+				t.Fatalf("%s: row %d: %d cells seen, want %d", name, r, n, g.Width)
+			}
 		}
-	}
-	if !bytes.Equal(nullmodel.EncodeBackground(&rings), nullmodel.EncodeBackground(&bg)) {
-		t.Error("the ring tally of the nested group differs from the brute-force tally")
+		for k := range accs {
+			if bg.Area(k) != accs[k].Area() || bg.Area(k) == 0 {
+				t.Errorf("%s: extent %d: rows hook area %d, accumulator %d", name, k, bg.Area(k), accs[k].Area())
+			}
+		}
+		if !bytes.Equal(nullmodel.EncodeBackground(&rings), nullmodel.EncodeBackground(&bg)) {
+			t.Errorf("%s: the run's tally differs from the brute-force tally", name)
+		}
 	}
 }
 
@@ -242,7 +256,7 @@ func BenchmarkNullPass(b *testing.B) {
 				b.ReportAllocs()
 				for b.Loop() {
 					var bg nullmodel.Background
-					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: tallyRows(g, fam, &bg)}); err != nil {
+					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: NullTally(fam, &bg)}); err != nil {
 						b.Fatal(err)
 					}
 				}
@@ -290,43 +304,6 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 		b.Fatal(err)
 	}
 	return g, v, layout, fullFamily(g, 8)
-}
-
-// tallyRows returns a rows hook that adds every row's distances to bg as
-// the run's sorting-bias tally does: each cell to the smallest member of
-// each nested group holding it, the rings added up when bg is read
-// (Background.Nest).
-func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
-	type scratch struct {
-		span extent.SpanScratch
-		row  nullmodel.Row
-		d    []float64
-	}
-	groups := fam.Groups()
-	bg.Nest(groups)
-	pool := sync.Pool{New: func() any { return new(scratch) }}
-	return func(row, c0 int, vals []float64, wts []int64) {
-		sc := pool.Get().(*scratch)
-		defer pool.Put(sc)
-		span, r := &sc.span, &sc.row
-		sc.d = sc.d[:0]
-		for _, v := range vals {
-			sc.d = append(sc.d, 0-v)
-		}
-		r.Set(sc.d, wts)
-		t := bg.Tally()
-		defer t.Done()
-		for _, seq := range groups {
-			inner := -1
-			for _, k := range seq {
-				runs := fam.Span(k, inner, row, c0, c0+len(vals), span)
-				for i := 0; i < len(runs); i += 2 {
-					t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
-				}
-				inner = k
-			}
-		}
-	}
 }
 
 // mustLayout returns a layout of 1000 values evenly spread over [lo, hi]
