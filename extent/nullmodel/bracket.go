@@ -277,7 +277,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	}
 	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
-		cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale()}
+		cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
 	}
@@ -322,7 +322,7 @@ type bracketer struct {
 	// nothing) and the floor grid's scale.
 	cellLo, cellHi float64
 	cellClosed     bool
-	scale          float64
+	scale, binW    float64 // 2^-e and 2^e
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -453,6 +453,25 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 		for j := i; j > 0 && b.csites[j].cc < b.csites[j-1].cc; j-- {
 			b.csites[j], b.csites[j-1] = b.csites[j-1], b.csites[j]
 		}
+	}
+	// A site q is farther than the first site (P_0, the nearest to the
+	// centre c) from every cell p of the super-tile when
+	//
+	//	|p - P_q|^2 - |p - P_0|^2 = L(c) - 2 (p - c).(P_q - P_0) >= L(c) - 2 rho |P_q - P_0| > 0,
+	//
+	// L(c) = cc_q^2 - cc_0^2 (the difference is linear in p; |p - c| <= rho):
+	// it is never the shortest chord, so it is left out (with 1 m^2 and
+	// 1e-12 cc_q^2 for rounding).
+	if len(b.csites) > 1 {
+		p0, cc0 := b.csites[0].p, b.csites[0].cc
+		keep := b.csites[:1]
+		for _, st := range b.csites[1:] {
+			if st.cc*st.cc-cc0*cc0-2*rho*dist3(st.p, p0) > 1+1e-12*st.cc*st.cc {
+				continue
+			}
+			keep = append(keep, st)
+		}
+		b.csites = keep
 	}
 	pend := false
 	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
@@ -703,6 +722,9 @@ func sortSites(m []anchorSite) {
 // bins: the same floor bin, and -lo in the exact-bin cell of -hi (see
 // Binner), which bins is asked for only when -hi is outside the last one.
 func (b *bracketer) sameBins(lo, hi float64) bool {
+	if hi-lo >= b.binW {
+		return false // wider than a floor bin [k w, (k+1) w)
+	}
 	u1, u2 := 0-hi, 0-lo
 	// The floor bin k of u1 (floorBin; u2 >= u1 is in a bin >= k): u2
 	// shares it iff u2 s < k + 1, exact since s is a power of two.
