@@ -91,9 +91,21 @@ func (b *Background) Nest(groups [][]int) {
 }
 
 type bgShard struct {
-	mu  sync.Mutex
-	ext []bgExtent
+	mu      sync.Mutex
+	ext     []bgExtent
+	classes []*bgClass // see Tally.AddAll
 }
+
+// bgClass holds the sums of cells added to every extent of ks at once
+// (Tally.AddAll), given to each of them when the partial sums are merged.
+type bgClass struct {
+	ks  []int
+	ext bgExtent
+}
+
+// bgClassCap is the largest number of classes a partial sum keeps: each
+// holds a histogram (histLen int64s, 221 KB).
+const bgClassCap = 4
 
 type bgExtent struct {
 	area         int64
@@ -187,13 +199,28 @@ func (t Tally) Add(k int, r *Row, lo, hi int) {
 }
 
 // AddAll adds cells lo <= i < hi of row r to each extent of ks (each >= 0,
-// none twice), walking the cells once.
+// none twice). The partial sum keeps the sums of a few such sets of
+// extents as classes of their own (the first bgClassCap sets it meets):
+// the cells are added once, to their class, whose sums go to each of its
+// extents when the partial sums are merged (integer sums: the same
+// totals). Other sets are added extent by extent in one walk of the
+// cells.
 func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 	switch len(ks) {
 	case 0:
 		return
 	case 1:
 		t.Add(ks[0], r, lo, hi)
+		return
+	}
+	if c := t.class(ks); c != nil {
+		t.runSums(&c.ext, r, lo, hi)
+		bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], c.ext.hist
+		for i, j := range bins {
+			if j >= 0 {
+				hist[j] += ws[i]
+			}
+		}
 		return
 	}
 	var hists [8][]int64
@@ -217,6 +244,23 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 		}
 		ks = ks[n:]
 	}
+}
+
+// class returns the partial sum's class of the extents ks, made if there
+// is room, nil if not.
+func (t Tally) class(ks []int) *bgClass {
+	sh := t.sh
+	for _, c := range sh.classes {
+		if slices.Equal(c.ks, ks) {
+			return c
+		}
+	}
+	if len(sh.classes) == bgClassCap {
+		return nil
+	}
+	c := &bgClass{ks: slices.Clone(ks), ext: bgExtent{hist: make([]int64, histLen)}}
+	sh.classes = append(sh.classes, c)
+	return c
 }
 
 // ext returns extent k's partial sums, made on first use.
@@ -266,8 +310,16 @@ func (b *Background) flush() {
 	for i := range b.shards {
 		sh := &b.shards[i]
 		sh.mu.Lock()
+		for _, c := range sh.classes {
+			for _, k := range c.ks {
+				if k >= len(sh.ext) {
+					sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
+				}
+				addExtent(&sh.ext[k], &c.ext)
+			}
+		}
 		b.merged, _ = addExtents(b.merged, sh.ext)
-		sh.ext = nil
+		sh.ext, sh.classes = nil, nil
 		sh.mu.Unlock()
 	}
 	for _, seq := range b.groups {
