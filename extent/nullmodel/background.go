@@ -56,6 +56,10 @@ const bgShards = 8
 // prepare each row once (Row.Set) and add its runs to every extent
 // through one Tally.
 //
+// A pass that adds each cell only to the smallest member of each nested
+// group holding it (as the accumulators do) declares the groups with Nest;
+// every read and EncodeBackground then sees each extent's whole cells.
+//
 // A distance-only null pass (pass.Virtual on a BoundedField) hands it the
 // midpoints of the cells' brackets, each within nullmodel.BracketTol
 // (0.1%) of the cell's distance, so the mean is then within 0.1% of the
@@ -63,14 +67,45 @@ const bgShards = 8
 type Background struct {
 	shards [bgShards]bgShard
 	mu     sync.Mutex
+	groups [][]int    // Nest's sequences: the partial sums hold ring sums
+	whole  []bgExtent // whole-extent sums merged in before the first read
 	merged []bgExtent // after the first read
 	done   bool
 }
 
-type bgShard struct {
-	mu  sync.Mutex
-	ext []bgExtent
+// Nest declares that the cells added from now on are ring cells of nested
+// groups: each sequence of groups lists nested extents from smallest to
+// largest, and a cell of a sequence's extents is added only to the
+// smallest of them that holds it. The sums read (and encoded) for extent
+// seq[i] are then those of seq[0..i] added up,
+//
+//	S(seq[i]) = sum_{j <= i} R(seq[j]),
+//
+// exact: the sums are integers and the histogram's bins are the same for
+// every extent. Extents in no sequence keep their own sums. Call it before
+// the first Add; Merge's sums are whole-extent sums, never added up again.
+func (b *Background) Nest(groups [][]int) {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	b.groups = groups
 }
+
+type bgShard struct {
+	mu      sync.Mutex
+	ext     []bgExtent
+	classes []*bgClass // see Tally.AddAll
+}
+
+// bgClass holds the sums of cells added to every extent of ks at once
+// (Tally.AddAll), given to each of them when the partial sums are merged.
+type bgClass struct {
+	ks  []int
+	ext bgExtent
+}
+
+// bgClassCap is the largest number of classes a partial sum keeps: each
+// holds a histogram (histLen int64s, 221 KB).
+const bgClassCap = 4
 
 type bgExtent struct {
 	area         int64
@@ -89,30 +124,45 @@ func (b *Background) Add(k int, dist []float64, weights []int64) {
 	t.Done()
 }
 
-// Row is one row of cells prepared for a Background: each cell's distance
-// in whole millimetres, its histogram bin and its weight, computed once
-// for all the extents the cells are added to.
+// Row is one row of cells prepared for a Background: each cell's histogram
+// bin and weight, and the prefix sums of the weights and of weight x
+// distance in whole millimetres (128 bits), computed once for all the
+// extents the cells are added to, so that a run's sums are two
+// differences.
 type Row struct {
-	mm  []uint64
-	bin []int32
-	w   []int64
+	bin    []int32
+	w      []int64
+	pa     []int64  // pa[i]: sum of the weights of cells < i
+	ph, pl []uint64 // sum of weight x mm of cells < i, high and low words (mod 2^128)
 }
 
 // Set prepares the cells: distance dist[i] (m; NaN: the cell is skipped)
 // and area weight weights[i] >= 0.
 func (r *Row) Set(dist []float64, weights []int64) {
 	n := len(dist)
-	if cap(r.mm) < n {
-		r.mm, r.bin, r.w = make([]uint64, n), make([]int32, n), make([]int64, n)
+	if cap(r.bin) < n || cap(r.pa) < n+1 {
+		r.bin, r.w = make([]int32, n), make([]int64, n)
+		r.pa, r.ph, r.pl = make([]int64, n+1), make([]uint64, n+1), make([]uint64, n+1)
 	}
-	r.mm, r.bin, r.w = r.mm[:n], r.bin[:n], r.w[:n]
+	r.bin, r.w = r.bin[:n], r.w[:n]
+	r.pa, r.ph, r.pl = r.pa[:n+1], r.ph[:n+1], r.pl[:n+1]
+	var area int64
+	var sumHi, sumLo uint64
 	for i, d := range dist {
+		r.pa[i], r.ph[i], r.pl[i] = area, sumHi, sumLo
 		if math.IsNaN(d) {
-			r.bin[i] = -1
+			r.bin[i], r.w[i] = -1, 0
 			continue
 		}
-		r.mm[i], r.bin[i], r.w[i] = uint64(math.Round(d*1000)), int32(distBin(d)), weights[i]
+		w := weights[i]
+		r.bin[i], r.w[i] = int32(distBin(d)), w
+		ph, pl := bits.Mul64(uint64(math.Round(d*1000)), uint64(w))
+		area += w
+		var carry uint64
+		sumLo, carry = bits.Add64(sumLo, pl, 0)
+		sumHi, _ = bits.Add64(sumHi, ph, carry)
 	}
+	r.pa[n], r.ph[n], r.pl[n] = area, sumHi, sumLo
 }
 
 // Tally is a locked partial sum of a Background, for adding rows.
@@ -138,6 +188,83 @@ func (t Tally) Done() { t.sh.mu.Unlock() }
 
 // Add adds cells lo <= i < hi of row r to extent k >= 0.
 func (t Tally) Add(k int, r *Row, lo, hi int) {
+	e := t.ext(k)
+	t.runSums(e, r, lo, hi)
+	bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], e.hist
+	for i, j := range bins {
+		if j >= 0 {
+			hist[j] += ws[i]
+		}
+	}
+}
+
+// AddAll adds cells lo <= i < hi of row r to each extent of ks (each >= 0,
+// none twice). The partial sum keeps the sums of a few such sets of
+// extents as classes of their own (the first bgClassCap sets it meets):
+// the cells are added once, to their class, whose sums go to each of its
+// extents when the partial sums are merged (integer sums: the same
+// totals). Other sets are added extent by extent in one walk of the
+// cells.
+func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
+	switch len(ks) {
+	case 0:
+		return
+	case 1:
+		t.Add(ks[0], r, lo, hi)
+		return
+	}
+	if c := t.class(ks); c != nil {
+		t.runSums(&c.ext, r, lo, hi)
+		bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], c.ext.hist
+		for i, j := range bins {
+			if j >= 0 {
+				hist[j] += ws[i]
+			}
+		}
+		return
+	}
+	var hists [8][]int64
+	for len(ks) > 0 {
+		n := min(len(ks), len(hists))
+		for q, k := range ks[:n] {
+			e := t.ext(k)
+			t.runSums(e, r, lo, hi)
+			hists[q] = e.hist
+		}
+		hs := hists[:n]
+		bins, ws := r.bin[lo:hi], r.w[lo:hi]
+		for i, j := range bins {
+			if j < 0 {
+				continue
+			}
+			w := ws[i]
+			for _, h := range hs {
+				h[j] += w
+			}
+		}
+		ks = ks[n:]
+	}
+}
+
+// class returns the partial sum's class of the extents ks, made if there
+// is room, nil if not.
+func (t Tally) class(ks []int) *bgClass {
+	sh := t.sh
+	for _, c := range sh.classes {
+		if slices.Equal(c.ks, ks) {
+			return c
+		}
+	}
+	if len(sh.classes) == bgClassCap {
+		return nil
+	}
+	c := &bgClass{ks: slices.Clone(ks), ext: bgExtent{hist: make([]int64, histLen)}}
+	sh.classes = append(sh.classes, c)
+	return c
+}
+
+// ext returns extent k's partial sums, made on first use.
+func (t Tally) ext(k int) *bgExtent {
 	sh := t.sh
 	if k >= len(sh.ext) {
 		sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
@@ -146,21 +273,19 @@ func (t Tally) Add(k int, r *Row, lo, hi int) {
 	if e.hist == nil {
 		e.hist = make([]int64, histLen)
 	}
-	area, sumHi, sumLo := e.area, e.sumHi, e.sumLo
-	for i := lo; i < hi; i++ {
-		j := r.bin[i]
-		if j < 0 {
-			continue
-		}
-		w := r.w[i]
-		ph, pl := bits.Mul64(r.mm[i], uint64(w))
-		area += w
-		var carry uint64
-		sumLo, carry = bits.Add64(sumLo, pl, 0)
-		sumHi, _ = bits.Add64(sumHi, ph, carry)
-		e.hist[j] += w
-	}
-	e.area, e.sumHi, e.sumLo = area, sumHi, sumLo
+	return e
+}
+
+// runSums adds the area and distance sums of cells lo <= i < hi of r to e.
+func (t Tally) runSums(e *bgExtent, r *Row, lo, hi int) {
+	// The run's sums from the prefix sums (128-bit differences wrap as the
+	// sums do), then its cells' histogram bins.
+	e.area += r.pa[hi] - r.pa[lo]
+	dl, borrow := bits.Sub64(r.pl[hi], r.pl[lo], 0)
+	dh, _ := bits.Sub64(r.ph[hi], r.ph[lo], borrow)
+	var carry uint64
+	e.sumLo, carry = bits.Add64(e.sumLo, dl, 0)
+	e.sumHi, _ = bits.Add64(e.sumHi, dh, carry)
 }
 
 // get returns extent k's sums, merging the partial sums at the first call
@@ -175,7 +300,8 @@ func (b *Background) get(k int) *bgExtent {
 	return &bgExtent{}
 }
 
-// flush merges the partial sums into b.merged, once; b.mu must be held.
+// flush merges the partial sums into b.merged, once, adding up each nested
+// sequence's ring sums (Nest); b.mu must be held.
 func (b *Background) flush() {
 	if b.done {
 		return
@@ -184,10 +310,31 @@ func (b *Background) flush() {
 	for i := range b.shards {
 		sh := &b.shards[i]
 		sh.mu.Lock()
+		for _, c := range sh.classes {
+			for _, k := range c.ks {
+				if k >= len(sh.ext) {
+					sh.ext = append(sh.ext, make([]bgExtent, k+1-len(sh.ext))...)
+				}
+				addExtent(&sh.ext[k], &c.ext)
+			}
+		}
 		b.merged, _ = addExtents(b.merged, sh.ext)
-		sh.ext = nil
+		sh.ext, sh.classes = nil, nil
 		sh.mu.Unlock()
 	}
+	for _, seq := range b.groups {
+		for i := 1; i < len(seq); i++ {
+			if seq[i-1] >= len(b.merged) || b.merged[seq[i-1]].hist == nil {
+				continue
+			}
+			if seq[i] >= len(b.merged) {
+				b.merged = append(b.merged, make([]bgExtent, seq[i]+1-len(b.merged))...)
+			}
+			addExtent(&b.merged[seq[i]], &b.merged[seq[i-1]])
+		}
+	}
+	b.merged, _ = addExtents(b.merged, b.whole)
+	b.whole = nil
 }
 
 // addExtents adds src's sums to dst's, extent by extent (dst grows to
@@ -199,25 +346,31 @@ func addExtents(dst, src []bgExtent) ([]bgExtent, error) {
 	}
 	var err error
 	for k := range src {
-		m, e := &dst[k], &src[k]
-		if e.hist == nil {
-			continue
-		}
-		if m.hist == nil {
-			m.hist = make([]int64, histLen)
-		}
-		area := m.area + e.area
-		lo, carry := bits.Add64(m.sumLo, e.sumLo, 0)
-		hi, over := bits.Add64(m.sumHi, e.sumHi, carry)
-		if (area < m.area || over != 0) && err == nil {
+		if addExtent(&dst[k], &src[k]) && err == nil {
 			err = fmt.Errorf("%w: extent %d: the sums overflow", ErrBackgroundEncoding, k)
-		}
-		m.area, m.sumHi, m.sumLo = area, hi, lo
-		for h, a := range e.hist {
-			m.hist[h] += a
 		}
 	}
 	return dst, err
+}
+
+// addExtent adds e's sums to m's and reports an overflow of the area or
+// the 128-bit sum.
+func addExtent(m, e *bgExtent) (overflow bool) {
+	if e.hist == nil {
+		return false
+	}
+	if m.hist == nil {
+		m.hist = make([]int64, histLen)
+	}
+	area := m.area + e.area
+	lo, carry := bits.Add64(m.sumLo, e.sumLo, 0)
+	hi, over := bits.Add64(m.sumHi, e.sumHi, carry)
+	overflow = area < m.area || over != 0
+	m.area, m.sumHi, m.sumLo = area, hi, lo
+	for h, a := range e.hist {
+		m.hist[h] += a
+	}
+	return overflow
 }
 
 // Area returns the total area weight of extent k.

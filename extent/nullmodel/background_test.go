@@ -1,6 +1,8 @@
 package nullmodel
 
 import (
+	"bytes"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -161,4 +163,50 @@ func TestDistBin(t *testing.T) {
 	}
 	check(0)
 	check(2.0e7)
+}
+
+// TestTallyAddAll: rows added with AddAll to sets of extents (more
+// distinct sets than a partial sum keeps as classes, so both ways are
+// taken, and sets in different orders) encode byte for byte as the same
+// rows added extent by extent with Add.
+func TestTallyAddAll(t *testing.T) {
+	r := rand.New(rand.NewPCG(31, 32))
+	var all, each Background
+	sets := 0
+	seen := map[string]bool{}
+	for range 200 {
+		n := 1 + r.IntN(60)
+		d, w := make([]float64, n), make([]int64, n)
+		for i := range d {
+			d[i], w[i] = math.Exp(1+12*r.Float64()), 1+r.Int64N(1e9)
+			if r.IntN(20) == 0 {
+				d[i] = math.NaN()
+			}
+		}
+		var row Row
+		row.Set(d, w)
+		var ks []int
+		for _, k := range r.Perm(7)[:r.IntN(5)] {
+			ks = append(ks, k)
+		}
+		if key := fmt.Sprint(ks); !seen[key] && len(ks) > 1 {
+			seen[key] = true
+			sets++
+		}
+		lo := r.IntN(n)
+		hi := lo + r.IntN(n-lo+1)
+		ta, te := all.Tally(), each.Tally()
+		ta.AddAll(ks, &row, lo, hi)
+		for _, k := range ks {
+			te.Add(k, &row, lo, hi)
+		}
+		ta.Done()
+		te.Done()
+	}
+	if sets <= bgClassCap {
+		t.Fatalf("%d sets of extents: the test would not fill the classes", sets)
+	}
+	if !bytes.Equal(EncodeBackground(&all), EncodeBackground(&each)) {
+		t.Error("AddAll encodes differently from Add extent by extent")
+	}
 }

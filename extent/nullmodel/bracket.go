@@ -7,16 +7,25 @@ import (
 	"areasweep/extent/geodesy"
 )
 
-// Binner places a value in the bins a scoring pass keeps apart: a metrics
-// Layout's exact bin and the value's bin on the layout's histogram floor
-// grid, whose edges include every edge of every fine histogram on the
-// layout (metrics.WithHistFloor; the pass's adapter is in
-// cmd/internal/pass).
-// Locate must be monotone: v1 <= v2 implies each returned index of v1 is
-// at most that of v2, so that a value between two values that share their
-// bins shares them too.
+// Binner tells which values a scoring pass keeps apart: a metrics
+// Layout's exact bins and the bins of the layout's histogram floor grid,
+// whose edges include every edge of every fine histogram on the layout
+// (metrics.WithHistFloor; the pass's adapter is in cmd/internal/pass).
+// Cell returns the values that share v's exact bin, an interval: u is in
+// it iff
+//
+//	lo < u < hi,  or  u == lo when closed,
+//
+// so two values u1 <= u2 share it iff u2 < hi of u1's cell, and a
+// bracketer that remembers the last cell places most brackets without
+// asking again. FloorScale returns s = 2^-e for the floor grid of
+// exponent e, whose bin of v is floor(v s), as metrics.Layout.FloorBin
+// computes it: exact (a power of two only moves the binary point), -0
+// counted as +0, and -1 for a tiny negative v whose product underflows to
+// -0.
 type Binner = interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
+	FloorScale() float64
 }
 
 // BracketTol is our choice of the largest relative error of the midpoint
@@ -58,6 +67,7 @@ const maxTaylorDist = 6e6
 // extent.Grid.Centre computes it.
 type lonLat struct {
 	west, dlon, north, dlat float64
+	sites                   [][3]float64 // ECEF position (m) of each site
 	mu                      sync.Mutex
 	rows                    map[[2]int]*stencil // by half side K and row of patches
 }
@@ -81,6 +91,11 @@ type stencil struct {
 // Bracket uses the fast path described there.
 func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
 	ll := &lonLat{west: west, dlon: dlon, north: north, dlat: dlat, rows: map[[2]int]*stencil{}}
+	ll.sites = make([][3]float64, ix.Len())
+	for k := range ll.sites {
+		lat, lon := ix.Site(k)
+		ll.sites[k] = ecef(lat, lon)
+	}
 	cen := func(row, c0, c1 int, lons, lats []float64) {
 		lat := north + (float64(row)+0.5)*dlat
 		for c := c0; c < c1; c++ {
@@ -89,6 +104,23 @@ func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
 		}
 	}
 	return &Field{ix: ix, centres: cen, ll: ll}
+}
+
+// ecef returns the ECEF position (m) of geodetic (lat, lon) in degrees,
+// through the parametric latitude beta: (a cos beta cos lon, a cos beta sin
+// lon, b sin beta).
+func ecef(lat, lon float64) [3]float64 {
+	ar, zr := ecefRow(lat)
+	sl, cl := math.Sincos(lon * math.Pi / 180)
+	return [3]float64{ar * cl, ar * sl, zr}
+}
+
+// ecefRow returns a cos(beta) and b sin(beta) at latitude lat (degrees).
+func ecefRow(lat float64) (ar, zr float64) {
+	sp, cp := math.Sincos(lat * math.Pi / 180)
+	sp *= 1 - geodesy.Flattening
+	h := math.Hypot(sp, cp)
+	return geodesy.SemiMajor * cp / h, geodesy.SemiMinor * sp / h
 }
 
 func (ll *lonLat) lat(r int) float64 { return ll.north + (float64(r)+0.5)*ll.dlat }
@@ -142,7 +174,39 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // depend on the block it is computed in.
 //
 // A Field made by New computes every cell exactly (lo = hi). One made by
-// NewLonLat uses anchors: a cell a measured exactly to each site k that can
+// NewLonLat first brackets each cell from chords. On a global lattice of
+// super-tiles of 15 x 15 cells, with rho >= 1.02 times the longest
+// geodesic from the super-tile's centre to its cells plus 1 m (from the
+// row's stencil, below) and d1 an upper bound on the centre's distance to
+// its nearest site (geodesy.Index.NearestBounds, no geodesic), the sites
+// the index lists within d1 + 2 rho of the centre hold every cell's
+// nearest site (triangle inequality, as in Distances). For each of them
+// the straight chord D between the ECEF positions bounds the geodesic s:
+//
+//	D <= s <= (2/kappa) asin(kappa D/2) <= D (1 + u/6 + u^2/10),  u = (kappa D/2)^2,
+//
+// for D <= 6000 km, with kappa = a/b^2 the largest normal curvature of the
+// ellipsoid. The lower bound holds because the segment is the shortest
+// curve. For the upper one, a geodesic is a curve in space whose
+// curvature is its normal curvature, at most kappa; Schur's comparison
+// theorem (S. S. Chern, Curves and surfaces in Euclidean space, Studies in
+// Global Geometry and Analysis, 1967; do Carmo, Differential Geometry of
+// Curves and Surfaces, 1976, sec. 5-7) compares it with a circular arc of
+// curvature kappa and the same length s <= pi/kappa: its chord is at least
+// the arc's, D >= (2/kappa) sin(kappa s/2), hence the bound. s <= pi/kappa
+// (19 903 km) holds for D <= 6000 km: the curve from one point radially
+// out to the sphere of radius a, along its great circle and radially in
+// (length <= a theta + 2(a - b), theta <= 2 asin(D/(2b)) the angle the
+// points make at the centre) lies outside the solid ellipsoid, and the
+// nearest-point projection onto a convex body shortens curves, so s <=
+// 6313 km. The series of asin has positive coefficients, those from x^5 on
+// at most 3/40, and u <= 0.225, so its tail is below 0.097 u^2. Both ends
+// grow with D, so the cell's bracket is that of the shortest chord, widened
+// by the margin below; no upper bound (+Inf) beyond 6000 km.
+//
+// The cells that bracket leaves undecided (too wide, or across a bin)
+// use anchors, and keep the intersection of both brackets (each holds the
+// distance): a cell a measured exactly to each site k that can
 // be nearest around it (f_k(a) = s(a, k) and the azimuth towards k), and,
 // for each cell p near a, a second-order Taylor bound along the geodesic
 // from a to p (length t, initial direction u; on such a grid the same for
@@ -175,16 +239,15 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // cell's bracket is the minimum over the measured sites of both ends (a
 // site with f(a) - t above the running upper end changes neither).
 //
-// The anchors: on a global lattice of super-tiles of 15 x 15 cells, the
-// centre cell is the first anchor of every cell of its super-tile; the
-// cells it leaves (bracket too wide or across a bin) go to the centre of
-// their patch of 5 x 5 cells (3 x 3 patches per super-tile). A site is
-// left out at an anchor when a lower bound on its distance there exceeds
-// the nearest measured one by more than twice the largest t (it cannot be
-// nearest anywhere around the anchor); the lower bounds at a patch's
-// anchor are the exact distances at the super-tile's centre minus
-// pathBound, and the super-tile's candidates come from one geodesy.Index
-// query, as in Distances. A cell whose patch bracket still fails is
+// The anchors: the super-tile's centre cell is the first anchor of every
+// cell of its super-tile that the chords left; the cells it leaves
+// (bracket too wide or across a bin) go to the centre of their patch of 5
+// x 5 cells (3 x 3 patches per super-tile). A site is left out at an
+// anchor when a lower bound on its distance there exceeds the nearest
+// measured one by more than twice the largest t (it cannot be nearest
+// anywhere around the anchor); the lower bounds at a patch's anchor are
+// the exact distances at the super-tile's centre minus pathBound, and
+// the candidates are the super-tile's. A cell whose patch bracket still fails is
 // computed exactly: the smallest geodesic to the patch's measured sites
 // whose brackets reach the smallest upper end (the others are farther),
 // which is Index.Nearest's value bit for bit.
@@ -203,7 +266,24 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	if cap(sc.pending) < n {
 		sc.pending = make([]bool, n)
 	}
-	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n]}
+	if cap(sc.clo) < n {
+		sc.clo, sc.chi = make([]float64, n), make([]float64, n)
+	}
+	if cap(sc.rowA) < h {
+		sc.rowA, sc.rowZ = make([]float64, h), make([]float64, h)
+	}
+	if cap(sc.colC) < w {
+		sc.colC, sc.colS = make([]float64, w), make([]float64, w)
+	}
+	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
+		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
+		cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+	for y := range h {
+		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
+	}
+	for x := range w {
+		b.colS[x], b.colC[x] = math.Sincos(f.ll.lon(x0+x) * math.Pi / 180)
+	}
 	for sr := floorDiv(y0, SuperTile); sr*SuperTile < y0+h; sr++ {
 		for scol := floorDiv(x0, SuperTile); scol*SuperTile < x0+w; scol++ {
 			b.super(sr, scol)
@@ -233,6 +313,16 @@ type bracketer struct {
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
 	pending  []bool // per block cell: left to the patches
+	clo, chi []float64 // per block cell: the chord bracket
+	// ECEF of the block's cells: (rowA[y] colC[x], rowA[y] colS[x], rowZ[y])
+	rowA, rowZ []float64
+	colC, colS []float64
+	csites     []chordSite // the super-tile's candidates by chord from its centre
+	// The last exact-bin cell asked for (Binner.Cell; NaN ends hold
+	// nothing) and the floor grid's scale.
+	cellLo, cellHi float64
+	cellClosed     bool
+	scale, binW    float64 // 2^-e and 2^e
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -244,6 +334,13 @@ type anchorSite struct {
 	sz, cz     float64
 	taylor     bool
 	slat, slon float64
+}
+
+// chordSite is a candidate site of a super-tile for the chord bracket: its
+// ECEF position and its chord from the super-tile's centre.
+type chordSite struct {
+	p  [3]float64
+	cc float64
 }
 
 // needed reports whether global cell (c, r) is in the block and needed.
@@ -274,23 +371,16 @@ func (b *bracketer) super(sr, scol int) {
 	ll, ix := b.ll, b.f.ix
 	cr, cc := r0+SuperTile/2, c0+SuperTile/2
 	clat, clon := ll.lat(cr), ll.lon(cc)
-	ok := math.Abs(clat) <= 90
-	rho := 0.0
-	for _, r := range [2]int{r0, r0 + SuperTile - 1} {
-		for _, c := range [2]int{c0, c0 + SuperTile - 1} {
-			la := ll.lat(r)
-			if !(math.Abs(la) <= 90) {
-				ok = false
-				continue
-			}
-			if ok {
-				rho = math.Max(rho, geodesy.Distance(clat, clon, la, ll.lon(c)))
-			}
-		}
-	}
+	// The stencil of the super-tile's row (the same for every super-tile
+	// of the row) holds the geodesic from the centre to each of its cells:
+	// rho bounds them all, with the slack of Distances' tiles.
+	big := ll.stencil(SuperTile/2, sr)
+	ok := big.ok
+	rho := big.tmax*1.02 + 1
 	if ok {
-		rho = rho*1.02 + 1 // as Distances' tiles
-		_, d1 := ix.Nearest(clat, clon, 0)
+		// An upper bound d1 on the centre's nearest distance, from the
+		// index's chord stage (no geodesic), instead of the distance.
+		_, d1 := ix.NearestBounds(clat, clon, 0)
 		b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
 	}
@@ -298,10 +388,13 @@ func (b *bracketer) super(sr, scol int) {
 		b.exactRange(r0, c0, SuperTile, SuperTile)
 		return
 	}
-	// First try the super-tile's centre as the anchor of all its cells.
+	// First the chord brackets: no geodesic.
+	if !b.chords(r0, c0, clat, clon, rho) {
+		return
+	}
+	// Then the super-tile's centre as the anchor of the cells left.
 	b.centreD = b.centreD[:0]
 	b.measured = b.measured[:0]
-	big := ll.stencil(SuperTile/2, sr)
 	best := math.Inf(1)
 	for _, k := range b.cands {
 		m := b.measure(k, clat, clon, big)
@@ -309,7 +402,7 @@ func (b *bracketer) super(sr, scol int) {
 		best = math.Min(best, m.f0)
 		b.measured = append(b.measured, m)
 	}
-	if big.ok {
+	{
 		keep := b.measured[:0]
 		for _, m := range b.measured {
 			if m.f0 <= best+2*big.tmax+1e-3 {
@@ -323,11 +416,10 @@ func (b *bracketer) super(sr, scol int) {
 	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
 		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
 			i, ok := b.needed(c, r)
-			if !ok {
+			if !ok || !b.pending[i] {
 				continue
 			}
-			b.pending[i] = true
-			if big.ok && b.cell(i, big, (r-cr+SuperTile/2)*SuperTile+c-cc+SuperTile/2) {
+			if b.cell(i, big, (r-cr+SuperTile/2)*SuperTile+c-cc+SuperTile/2) {
 				b.pending[i] = false
 				continue
 			}
@@ -342,6 +434,119 @@ func (b *bracketer) super(sr, scol int) {
 			b.patch(sr*superP+pr, scol*superP+pc, clat, clon)
 		}
 	}
+}
+
+// chords brackets every needed cell of the block in super-tile (r0, c0)
+// (centre (clat, clon), every cell centre within rho of it) from its ECEF
+// chords to the candidate sites (chordBracket; the minimum over the sites
+// of both ends), keeps the bracket in clo and chi, sets lo and hi of the
+// cells whose bracket is narrow enough and inside one bin, marks the
+// others pending, and reports whether any is.
+func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
+	pc := ecef(clat, clon)
+	b.csites = b.csites[:0]
+	for _, k := range b.cands {
+		p := b.ll.sites[k]
+		b.csites = append(b.csites, chordSite{p: p, cc: dist3(pc, p)})
+	}
+	for i := 1; i < len(b.csites); i++ {
+		for j := i; j > 0 && b.csites[j].cc < b.csites[j-1].cc; j-- {
+			b.csites[j], b.csites[j-1] = b.csites[j-1], b.csites[j]
+		}
+	}
+	// A site q is farther than the first site (P_0, the nearest to the
+	// centre c) from every cell p of the super-tile when
+	//
+	//	|p - P_q|^2 - |p - P_0|^2 = L(c) - 2 (p - c).(P_q - P_0) >= L(c) - 2 rho |P_q - P_0| > 0,
+	//
+	// L(c) = cc_q^2 - cc_0^2 (the difference is linear in p; |p - c| <= rho):
+	// it is never the shortest chord, so it is left out (with 1 m^2 and
+	// 1e-12 cc_q^2 for rounding).
+	if len(b.csites) > 1 {
+		p0, cc0 := b.csites[0].p, b.csites[0].cc
+		keep := b.csites[:1]
+		for _, st := range b.csites[1:] {
+			if st.cc*st.cc-cc0*cc0-2*rho*dist3(st.p, p0) > 1+1e-12*st.cc*st.cc {
+				continue
+			}
+			keep = append(keep, st)
+		}
+		b.csites = keep
+	}
+	pend := false
+	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
+		y := r - b.y0
+		ar, zr := b.rowA[y], b.rowZ[y]
+		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
+			i, ok := b.needed(c, r)
+			if !ok {
+				continue
+			}
+			x := c - b.x0
+			px, py := ar*b.colC[x], ar*b.colS[x]
+			// Both ends of chordBracket grow with the chord, so the
+			// minimum over the sites of each end is that of the shortest
+			// chord.
+			d2 := math.Inf(1)
+			for q := range b.csites {
+				st := &b.csites[q]
+				// The chord from the cell is at least cc - rho: once that
+				// exceeds the shortest chord so far (by 1 m for rounding),
+				// this site and the farther ones are farther still.
+				if g := st.cc - rho - 1; g > 0 && g*g > d2 {
+					break
+				}
+				dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
+				d2 = min(d2, dx*dx+dy*dy+dz*dz)
+			}
+			lo, hi := chordBracket(math.Sqrt(d2))
+			b.clo[i], b.chi[i] = lo, hi
+			if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+				b.lo[i], b.hi[i] = lo, hi
+				b.pending[i] = false
+				continue
+			}
+			b.pending[i] = true
+			pend = true
+		}
+	}
+	return pend
+}
+
+// dist3 returns the Euclidean distance between p and q.
+func dist3(p, q [3]float64) float64 {
+	dx, dy, dz := p[0]-q[0], p[1]-q[1], p[2]-q[2]
+	return math.Sqrt(dx*dx + dy*dy + dz*dz)
+}
+
+// chordKappa is the largest normal curvature of the WGS84 ellipsoid (1/m):
+// a/b^2, that of the meridian at the equator (radius of curvature b^2/a).
+var chordKappa = geodesy.SemiMajor / (geodesy.SemiMinor * geodesy.SemiMinor)
+
+// maxChord is the longest ECEF chord (m) to which chordBracket gives an
+// upper bound.
+const maxChord = 6e6
+
+// chordBracket returns bounds on the geodesic distance s between two points
+// whose ECEF chord is d (see Bracket):
+//
+//	d <= s <= (2/kappa) asin(kappa d/2) <= d (1 + u/6 + u^2/10),  u = (kappa d/2)^2,
+//
+// widened by the margin of taylorBracket, and no upper bound (+Inf) above
+// maxChord.
+func chordBracket(d float64) (lo, hi float64) {
+	margin := 1e-3 + 1e-9*d
+	if lo = d - margin; lo < 0 {
+		lo = 0
+	}
+	if !(d <= maxChord) {
+		return lo, math.Inf(1)
+	}
+	x := chordKappa * d / 2
+	u := x * x
+	// 0.1 rounds up from 1/10 and 1/6 is within 1e-16 of 1/6: the
+	// margin's 1e-9 d covers the rounding.
+	return lo, d*(1+u*(1.0/6+u*0.1)) + margin
 }
 
 // measure returns site k measured exactly at anchor (alat, alon), with the
@@ -378,6 +583,8 @@ func (b *bracketer) cell(i int, st *stencil, j int) bool {
 			hi = h1
 		}
 	}
+	// Both brackets hold the distance: keep their intersection.
+	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
 	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
 		b.lo[i], b.hi[i] = lo, hi
 		return true
@@ -511,11 +718,31 @@ func sortSites(m []anchorSite) {
 	}
 }
 
-// sameBins reports whether the values -hi and -lo share their bins.
+// sameBins reports whether the values -hi and -lo (lo <= hi) share their
+// bins: the same floor bin, and -lo in the exact-bin cell of -hi (see
+// Binner), which bins is asked for only when -hi is outside the last one.
 func (b *bracketer) sameBins(lo, hi float64) bool {
-	b1, h1 := b.bins.Locate(0 - hi)
-	b2, h2 := b.bins.Locate(0 - lo)
-	return b1 == b2 && h1 == h2
+	if hi-lo >= b.binW {
+		return false // wider than a floor bin [k w, (k+1) w)
+	}
+	u1, u2 := 0-hi, 0-lo
+	// The floor bin k of u1 (floorBin; u2 >= u1 is in a bin >= k): u2
+	// shares it iff u2 s < k + 1, exact since s is a power of two.
+	x, y := u1*b.scale, u2*b.scale
+	k := math.Floor(x)
+	if x == 0 && u1 < 0 {
+		k = -1 // underflow: bin -1
+	}
+	if y == 0 && u2 < 0 {
+		y = -0.5 // underflow: bin -1
+	}
+	if !(y < k+1) {
+		return false
+	}
+	if !((u1 > b.cellLo || b.cellClosed && u1 == b.cellLo) && u1 < b.cellHi) {
+		b.cellLo, b.cellHi, b.cellClosed = b.bins.Cell(u1)
+	}
+	return u2 < b.cellHi
 }
 
 // taylorBracket returns bounds on the distance from the cell at geodesic
@@ -584,7 +811,8 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 // both ends in the same bins of bins, lo[i] == hi[i] (the exact value of
 // Fill) where the cell was computed exactly, NaN where Fill gives NaN.
 func (f *Field) Bounds(x0, y0, w, h int, need []uint64, bins interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
+	FloorScale() float64
 }, lo, hi []float64) {
 	f.Bracket(x0, y0, w, h, need, bins, lo, hi)
 	for i := range lo[:w*h] {

@@ -3,17 +3,48 @@ package nullmodel
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"areasweep/extent/geodesy"
 	"areasweep/metrics"
 )
 
-// floorBins is the Binner of a pass on a floored layout: exact bin and
-// floor-grid bin (the pass's own adapter lives in cmd/internal/pass).
-type floorBins struct{ l *metrics.Layout }
+// floorBins is the Binner of a pass on a floored layout (the pass's own
+// adapter lives in cmd/internal/pass, tested there against Locate and
+// FloorBin): Locate gives the exact bin and floor-grid bin of a value, Cell
+// the interval of values sharing both.
+type floorBins struct {
+	l *metrics.Layout
+	d []float64
+}
+
+func newFloorBins(l *metrics.Layout) floorBins { return floorBins{l, l.Values()} }
 
 func (b floorBins) Locate(v float64) (bin, hist int) { return b.l.Locate(v), int(b.l.FloorBin(v)) }
+
+// Cell returns the exact bin: the value d_j, or the open interval between
+// two values.
+func (b floorBins) Cell(v float64) (lo, hi float64, closed bool) {
+	bin := b.l.Locate(v)
+	j := bin >> 1
+	if bin&1 == 1 {
+		return b.d[j], b.d[j], true
+	}
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if j > 0 {
+		lo = b.d[j-1]
+	}
+	if j < len(b.d) {
+		hi = b.d[j]
+	}
+	return lo, hi, false
+}
+
+func (b floorBins) FloorScale() float64 {
+	e, _ := b.l.HistFloor()
+	return math.Ldexp(1, -e)
+}
 
 // testLayout returns the bins of a layout like a pass's for the null: the
 // values at every 37th cell (as presence values would be) and 4096
@@ -30,7 +61,7 @@ func testLayout(t testing.TB, dist []float64, far float64) floorBins {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return floorBins{l}
+	return newFloorBins(l)
 }
 
 // TestBracketContainsDistance checks Bracket against Distances on
@@ -162,7 +193,7 @@ func BenchmarkFieldBracket(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			layout := floorBins{l}
+			layout := newFloorBins(l)
 			lo, hi := make([]float64, 240*240), make([]float64, 240*240)
 			b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
 				b.ReportAllocs()
@@ -214,6 +245,43 @@ func TestHessianBounds(t *testing.T) {
 			if h1 > hLoFast(f0+step)*(1+eps) || h2*(1+eps) < hHiFast(f0-step) {
 				t.Fatalf("f0 = %v m, t = %v m: division-free bounds %v, %v against %v, %v", f0, step, h1, h2, hLoFast(f0+step), hHiFast(f0-step))
 			}
+		}
+	}
+}
+
+// TestChordBracket checks chordBracket against PROJ's geodesic distance
+// (geodesy.Distance) for random pairs of points whose chord runs from 1 m
+// to past maxChord, at every latitude and across the antimeridian and the
+// poles: the bracket holds the distance, its width is within 1.1 times
+// that of Schur's bound itself, (2/kappa) asin(kappa D/2) - D (about
+// kappa^2 D^3/24), plus the margins, and beyond maxChord there is no
+// upper bound.
+func TestChordBracket(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for i := range 20000 {
+		lat1, lon1 := 180*r.Float64()-90, 360*r.Float64()-180
+		if i%50 == 0 {
+			lat1 = math.Copysign(90-r.Float64()*1e-3, lat1)
+		}
+		// scale of the second point's offset: 1e-5 to 60 degrees
+		deg := math.Pow(10, -5+math.Log10(6e6)*r.Float64())
+		lat2 := math.Max(-90, math.Min(90, lat1+deg*(2*r.Float64()-1)))
+		lon2 := lon1 + deg*(2*r.Float64()-1)*3
+		d := dist3(ecef(lat1, lon1), ecef(lat2, lon2))
+		s := geodesy.Distance(lat1, lon1, lat2, lon2)
+		lo, hi := chordBracket(d)
+		if !(lo <= s && s <= hi) {
+			t.Fatalf("(%v, %v) to (%v, %v): chord %.9f m, distance %.9f m outside [%.9f, %.9f]", lat1, lon1, lat2, lon2, d, s, lo, hi)
+		}
+		if d > maxChord {
+			if !math.IsInf(hi, 1) {
+				t.Fatalf("chord %v beyond maxChord: upper end %v, want +Inf", d, hi)
+			}
+			continue
+		}
+		schur := 2/chordKappa*math.Asin(chordKappa*d/2) - d
+		if w := hi - lo; w > 1.1*schur+2e-3+3e-9*d {
+			t.Fatalf("chord %.3f m: bracket %.6f m wide", d, w)
 		}
 	}
 }

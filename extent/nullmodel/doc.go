@@ -23,12 +23,15 @@
 //
 // A scoring pass needs less than each value: only the bins of the model's
 // layout each cell falls in. On a latitude-longitude grid (NewLonLat),
-// Bracket proves an interval around each cell's distance from a few exact
-// geodesics per block (a second-order bound along the geodesic from an
-// anchor cell, with the Hessian comparison theorem for the ellipsoid) and
-// measures a cell only when its interval straddles a bin edge (of the
-// exact bins or of the histogram's floor grid) or is wider than
-// BracketTol; see Bracket.
+// Bracket proves an interval around each cell's distance, first from the
+// straight ECEF chord to the candidate sites alone (no geodesic: the
+// chord bounds the geodesic from below, and Schur's comparison theorem
+// with the ellipsoid's largest curvature bounds it from above), then, for
+// cells that interval leaves undecided, from a few exact geodesics per
+// block (a second-order bound along the geodesic from an anchor cell, with
+// the Hessian comparison theorem for the ellipsoid), and measures a cell
+// only when its interval still straddles a bin edge (of the exact bins or
+// of the histogram's floor grid) or is wider than BracketTol; see Bracket.
 //
 // Background gathers, per extent, the area-weighted distribution of those
 // distances, and SortingBias compares it with the test points' distances.

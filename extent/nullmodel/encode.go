@@ -181,10 +181,9 @@ func (b *Background) Merge(o *Background) error {
 		b.merged, err = addExtents(b.merged, o.merged)
 		return err
 	}
-	sh := &b.shards[0]
-	sh.mu.Lock()
-	defer sh.mu.Unlock()
+	// Whole-extent sums: kept apart from the partial sums, which may be
+	// ring sums to be added up along Nest's sequences.
 	var err error
-	sh.ext, err = addExtents(sh.ext, o.merged)
+	b.whole, err = addExtents(b.whole, o.merged)
 	return err
 }

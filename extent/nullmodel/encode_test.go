@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"sync"
 	"testing"
@@ -156,5 +157,106 @@ func TestBackgroundEncodesMergedPartialSums(t *testing.T) {
 	}
 	if !bytes.Equal(EncodeBackground(late), want) {
 		t.Error("merge then adds encodes differently from the whole")
+	}
+}
+
+// TestBackgroundNestedRings: cells tallied as rings of nested groups
+// (Nest: each cell added only to the smallest extent of each sequence
+// holding it) encode byte for byte as the same cells added to every
+// extent holding them, tallied directly or after a Merge of a part (whose
+// whole-extent sums must not be added up again). Extents 0 ⊂ 1 ⊂ 4 form
+// one sequence, 2 ⊂ 3 another (3 holds every cell of 2, 2 is sometimes
+// empty in a row), and 5 stands alone.
+func TestBackgroundNestedRings(t *testing.T) {
+	rng := rand.New(rand.NewPCG(41, 42))
+	const rows, cols = 60, 50
+	groups := [][]int{{0, 1, 4}, {2, 3}, {5}}
+	type cell struct {
+		d    float64
+		w    int64
+		mask uint64
+	}
+	grid := make([][]cell, rows)
+	for r := range grid {
+		for c := 0; c < cols; c++ {
+			var m uint64
+			switch lvl := rng.IntN(4); lvl { // smallest of 0 ⊂ 1 ⊂ 4 holding it (3: none)
+			case 0:
+				m |= 1<<0 | 1<<1 | 1<<4
+			case 1:
+				m |= 1<<1 | 1<<4
+			case 2:
+				m |= 1 << 4
+			}
+			if rng.IntN(3) == 0 {
+				m |= 1 << 3
+				if r%4 != 0 && rng.IntN(2) == 0 {
+					m |= 1 << 2
+				}
+			}
+			if rng.IntN(2) == 0 {
+				m |= 1 << 5
+			}
+			d := rng.Float64() * 3e5
+			if rng.IntN(40) == 0 {
+				d = math.NaN()
+			}
+			grid[r] = append(grid[r], cell{d, int64(rng.IntN(1<<30)) + 1, m})
+		}
+	}
+	// add tallies rows r0 <= r < r1 into b, to every extent holding a cell
+	// (ring false) or to the smallest of each sequence (ring true).
+	add := func(b *Background, r0, r1 int, ring bool) {
+		for r := r0; r < r1; r++ {
+			var row Row
+			d, w := make([]float64, cols), make([]int64, cols)
+			for c, x := range grid[r] {
+				d[c], w[c] = x.d, x.w
+			}
+			row.Set(d, w)
+			tl := b.Tally()
+			for _, seq := range groups {
+				for i, k := range seq {
+					for c := range cols {
+						m := grid[r][c].mask
+						if m>>uint(k)&1 == 0 || ring && i > 0 && m>>uint(seq[i-1])&1 != 0 {
+							continue
+						}
+						tl.Add(k, &row, c, c+1)
+					}
+				}
+			}
+			tl.Done()
+		}
+	}
+	whole := &Background{}
+	add(whole, 0, rows, false)
+	want := EncodeBackground(whole)
+	rings := &Background{}
+	rings.Nest(groups)
+	add(rings, 0, rows, true)
+	if !bytes.Equal(EncodeBackground(rings), want) {
+		t.Error("ring tallies added up along the groups encode differently from whole-extent tallies")
+	}
+	part := &Background{}
+	part.Nest(groups)
+	add(part, 0, rows/3, true)
+	d, err := DecodeBackground(EncodeBackground(part))
+	if err != nil {
+		t.Fatal(err)
+	}
+	late := &Background{}
+	late.Nest(groups)
+	if err := late.Merge(d); err != nil {
+		t.Fatal(err)
+	}
+	add(late, rows/3, rows, true)
+	if !bytes.Equal(EncodeBackground(late), want) {
+		t.Error("a merged part then ring tallies encode differently from whole-extent tallies")
+	}
+	for k := range 6 {
+		if whole.Area(k) == 0 {
+			t.Errorf("extent %d has no area: the test would not test it", k)
+		}
 	}
 }

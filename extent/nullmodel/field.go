@@ -42,6 +42,9 @@ type scratch struct {
 	cands      []int
 	lb         []float64
 	pending    []bool
+	clo, chi   []float64 // Bracket's chord brackets
+	rowA, rowZ []float64 // Bracket's ECEF rows and columns
+	colC, colS []float64
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}

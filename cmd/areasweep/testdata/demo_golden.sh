@@ -26,7 +26,11 @@
 #     histogram floored at the power of two at or below its largest
 #     distance's bound / 4096, so that its bracketed cells can be checked
 #     against every histogram edge before the pass: the null's Boyce
-#     values may move; the models' outputs do not).
+#     values may move; the models' outputs do not);
+#   - rewritten on branch h1 (the null's cells bracketed first from their
+#     ECEF chords to the sites: other cells get brackets, so the
+#     sorting-bias background's means and medians, tallied from bracket
+#     midpoints, moved by at most 0.006%; every score is unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -59,7 +59,7 @@ func BenchmarkNullVsRaster(b *testing.B) {
 				}
 				t1 := cpuNow(b)
 				var bg nullmodel.Background
-				if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: tallyRows(g, fam, &bg)}); err != nil {
+				if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: NullTally(fam, &bg)}); err != nil {
 					b.Fatal(err)
 				}
 				t2 := cpuNow(b)

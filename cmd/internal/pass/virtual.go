@@ -3,6 +3,7 @@ package pass
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
@@ -20,15 +21,18 @@ type Field interface {
 	Fill(x0, y0, w, h int, need []uint64, dst []float64)
 }
 
-// Binner places a value in the bins a pass keeps apart: its exact bin and
-// its histogram bin (floorBinner on a floored *metrics.Layout).
+// Binner tells which values a pass keeps apart: Cell(v) is the interval of
+// values that share v's exact bin, FloorScale the scale 2^-e of the floor
+// grid whose bins floor(v * 2^-e) they must share too (see
+// nullmodel.Binner; floorBinner on a floored *metrics.Layout).
 type Binner = interface {
-	Locate(v float64) (bin, hist int)
+	Cell(v float64) (lo, hi float64, closed bool)
+	FloorScale() float64
 }
 
 // floorBinner is the Binner of a layout with a histogram floor e
-// (metrics.WithHistFloor): the exact bin of v and its bin on the floor
-// grid, floor(v * 2^-e).
+// (metrics.WithHistFloor): the values that share v's exact bin, and the
+// floor grid, whose bin of v is floor(v * 2^-e) (Layout.FloorBin).
 //
 // Why this is enough although each accumulator chooses its histogram grid
 // from its own cells during the pass: every accumulator on the layout uses
@@ -38,17 +42,44 @@ type Binner = interface {
 // a cell's bounds have the same exact bin and the same floor bin, so do
 // the midpoint and the exact value (bins are intervals), in every
 // accumulator at every level it may reach.
-type floorBinner struct{ l *metrics.Layout }
-
-// Locate returns the exact bin of v and its floor-grid bin.
-func (b floorBinner) Locate(v float64) (bin, hist int) {
-	return b.l.Locate(v), int(b.l.FloorBin(v))
+type floorBinner struct {
+	l *metrics.Layout
+	d []float64 // the layout's values, d_0 < ... < d_{m-1}
+	s float64   // 2^-e for the floor exponent e
 }
+
+// newFloorBinner returns the Binner of a floored layout.
+func newFloorBinner(l *metrics.Layout) floorBinner {
+	e, _ := l.HistFloor()
+	return floorBinner{l: l, d: l.Values(), s: math.Ldexp(1, -e)}
+}
+
+// Cell returns the values that share v's exact bin (see
+// nullmodel.Binner): {d_j} when Locate gives 2j+1 (v is d_j), the open
+// interval (d_{j-1}, d_j) when it gives 2j (no end at j = 0 or m).
+func (b floorBinner) Cell(v float64) (lo, hi float64, closed bool) {
+	bin := b.l.Locate(v)
+	j := bin >> 1
+	if bin&1 == 1 {
+		return b.d[j], b.d[j], true
+	}
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if j > 0 {
+		lo = b.d[j-1]
+	}
+	if j < len(b.d) {
+		hi = b.d[j]
+	}
+	return lo, hi, false
+}
+
+// FloorScale returns 2^-e for the layout's floor exponent e.
+func (b floorBinner) FloorScale() float64 { return b.s }
 
 // BoundedField is a Field that can bound its values instead of computing
 // each one: Bounds sets lo[i] <= value <= hi[i] for the cells Fill would
-// compute, with bins.Locate(lo[i]) == bins.Locate(hi[i]) (Locate is
-// monotone, so the value shares those bins), lo[i] == hi[i] equal to Fill's
+// compute, with lo[i] and hi[i] in the same cell of bins (bins.Cell; a
+// cell is an interval, so the value shares their bins), lo[i] == hi[i] equal to Fill's
 // value where it computed the cell, NaN where Fill gives NaN. A cell's
 // bounds must not depend on the block. A Virtual scores such a field
 // exactly as it would score Fill's values: see Virtual.
@@ -109,6 +140,7 @@ type virtualSource struct {
 	outer  []int // the largest member of each group: their union is every member's cells
 	need   []uint64
 	span   extent.SpanScratch
+	prev   []int32 // the runs walked last in the row (markNeed, exactExtremes)
 	// bounded path
 	bf           BoundedField
 	bins         Binner
@@ -163,16 +195,23 @@ func (s *virtualSource) shownValues(n int) []float64 {
 }
 
 // markNeed sets need[y*w+x] for every cell of the block at (x0, y0) of w x
-// h cells that lies in some member.
+// h cells that lies in some member. A group whose runs in a row are those
+// of the group before (often the case: several extents covering the row)
+// is not walked again.
 func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 	for y := range h {
-		for _, k := range s.outer {
+		s.prev = s.prev[:0]
+		for g, k := range s.outer {
 			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
+			if g > 0 && slices.Equal(runs, s.prev) {
+				continue
+			}
 			for i := 0; i < len(runs); i += 2 {
 				for x := int(runs[i]) - x0; x < int(runs[i+1])-x0; x++ {
 					need[y*w+x] = 1
 				}
 			}
+			s.prev = append(s.prev[:0], runs...)
 		}
 	}
 }
@@ -181,8 +220,9 @@ func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 // the block that may hold the smallest or the largest value of a member
 // it is added to (see Virtual). A first walk finds each member's smallest
 // upper and largest lower bound in the block and, per row, its smallest
-// lower and largest upper bound; the second walk visits only the rows
-// that can hold such a cell.
+// lower and largest upper bound (reusing the previous member's figures
+// when its runs in the row are the same: minima and maxima of the same
+// cells); the second walk visits only the rows that can hold such a cell.
 func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
 	nm := len(s.minHi)
 	for k := range s.minHi {
@@ -193,30 +233,38 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
 	}
 	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
 	for y := range h {
+		s.prev = s.prev[:0]
+		first := true
+		var mn, mx, rl, rh float64
 		for _, seq := range s.groups {
 			inner := -1
 			for _, k := range seq {
 				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
-				mn, mx := s.minHi[k], s.maxLo[k]
-				rl, rh := math.Inf(1), math.Inf(-1)
-				for j := 0; j < len(runs); j += 2 {
-					// NaN compares false: cells with no value are left out.
-					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
-						if hi[i] < mn {
-							mn = hi[i]
-						}
-						if lo[i] > mx {
-							mx = lo[i]
-						}
-						if lo[i] < rl {
-							rl = lo[i]
-						}
-						if hi[i] > rh {
-							rh = hi[i]
+				if first || !slices.Equal(runs, s.prev) {
+					mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+					for j := 0; j < len(runs); j += 2 {
+						a, b := y*w+int(runs[j])-x0, y*w+int(runs[j+1])-x0
+						// NaN compares false: cells with no value are left out.
+						for i, l := range lo[a:b] {
+							u := hi[a+i]
+							if u < mn {
+								mn = u
+							}
+							if l > mx {
+								mx = l
+							}
+							if l < rl {
+								rl = l
+							}
+							if u > rh {
+								rh = u
+							}
 						}
 					}
+					s.prev = append(s.prev[:0], runs...)
+					first = false
 				}
-				s.minHi[k], s.maxLo[k] = mn, mx
+				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
 				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
 				inner = k
 			}
@@ -264,10 +312,14 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 	if _, floored := layout.HistFloor(); !floored {
 		bf = nil // histogram edges unknown before the pass: compute every cell
 	}
+	var fb floorBinner
+	if bf != nil {
+		fb = newFloorBinner(layout)
+	}
 	open := func() (Source, error) {
 		src := &virtualSource{v: v, fam: fam, groups: groups, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}
 		if bf != nil {
-			src.bf, src.bins = bf, floorBinner{layout}
+			src.bf, src.bins = bf, fb
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
 			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))

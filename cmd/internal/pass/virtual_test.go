@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"math"
@@ -125,7 +126,7 @@ func TestVirtualEqualsRaster(t *testing.T) {
 	// Most cells must take the bounded path (midpoints), or this test
 	// would not test it.
 	lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
-	f.Bounds(0, 0, g.Width, g.Height, nil, floorBinner{layout}, lo, hi)
+	f.Bounds(0, 0, g.Width, g.Height, nil, newFloorBinner(layout), lo, hi)
 	bounded := 0
 	for i := range lo {
 		if lo[i] != hi[i] {
@@ -179,35 +180,60 @@ func TestVirtualEqualsRaster(t *testing.T) {
 
 // TestRowsHook checks that Options.Rows sees every row of the grid once with
 // the values and weights the pass uses: summing weight over each member's
-// valid cells (Family.Has) gives each accumulator's area.
+// valid cells (Family.Has) gives each accumulator's area. The run's tally
+// (NullTally: ring cells, added up when read; members with the same runs
+// in a row added together) encodes byte for byte as the brute-force one,
+// on nullSetup's family with the west half declared a chain inside the
+// whole (one nested group), and on one whose first two members are the
+// same cells (one walk for both).
 func TestRowsHook(t *testing.T) {
-	g, v, _, fam := nullSetup(t)
+	g, v, _, chained := nullSetup(t)
+	chained.Chains = map[string][]int{"west-in-all": {1, 0}}
+	if gr := chained.Groups(); len(gr) != 1 || len(gr[0]) != 2 {
+		t.Fatalf("groups %v, want one sequence of two nested members", gr)
+	}
+	mask := make([]uint64, g.Cells())
+	for i := range mask {
+		if i%97 != 0 {
+			mask[i] = 3
+			if i%g.Width < g.Width/3 {
+				mask[i] |= 4
+			}
+		}
+	}
+	twins := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
 	layout, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
 	}
-	var bg nullmodel.Background
-	seen := make([]int, g.Height)
-	var mu sync.Mutex
-	tally := bruteTally(g, fam, &bg)
-	opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
-		tally(row, c0, vals, w)
-		mu.Lock()
-		seen[row] += len(vals)
-		mu.Unlock()
-	}}
-	accs, _, err := v.Score(g, fam, layout, opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for r, n := range seen {
-		if n != g.Width {
-			t.Fatalf("row %d: %d cells seen, want %d", r, n, g.Width)
+	for name, fam := range map[string]*extent.Family{"chained": chained, "twins": twins} {
+		var bg, rings nullmodel.Background
+		seen := make([]int, g.Height)
+		var mu sync.Mutex
+		tally, ringTally := bruteTally(g, fam, &bg), NullTally(fam, &rings)
+		opt := Options{Workers: 2, Rows: func(row, c0 int, vals []float64, w []int64) {
+			tally(row, c0, vals, w)
+			ringTally(row, c0, vals, w)
+			mu.Lock()
+			seen[row] += len(vals)
+			mu.Unlock()
+		}}
+		accs, _, err := v.Score(g, fam, layout, opt)
+		if err != nil {
+			t.Fatal(err)
 		}
-	}
-	for k := range accs {
-		if bg.Area(k) != accs[k].Area() {
-			t.Errorf("extent %d: rows hook area %d, accumulator %d", k, bg.Area(k), accs[k].Area())
+		for r, n := range seen {
+			if n != g.Width {
+				t.Fatalf("%s: row %d: %d cells seen, want %d", name, r, n, g.Width)
+			}
+		}
+		for k := range accs {
+			if bg.Area(k) != accs[k].Area() || bg.Area(k) == 0 {
+				t.Errorf("%s: extent %d: rows hook area %d, accumulator %d", name, k, bg.Area(k), accs[k].Area())
+			}
+		}
+		if !bytes.Equal(nullmodel.EncodeBackground(&rings), nullmodel.EncodeBackground(&bg)) {
+			t.Errorf("%s: the run's tally differs from the brute-force tally", name)
 		}
 	}
 }
@@ -230,7 +256,7 @@ func BenchmarkNullPass(b *testing.B) {
 				b.ReportAllocs()
 				for b.Loop() {
 					var bg nullmodel.Background
-					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: tallyRows(g, fam, &bg)}); err != nil {
+					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: NullTally(fam, &bg)}); err != nil {
 						b.Fatal(err)
 					}
 				}
@@ -278,35 +304,6 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 		b.Fatal(err)
 	}
 	return g, v, layout, fullFamily(g, 8)
-}
-
-// tallyRows returns a rows hook that adds every row's distances to bg for
-// every member holding them, as the run's sorting-bias tally does.
-func tallyRows(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) func(int, int, []float64, []int64) {
-	type scratch struct {
-		span extent.SpanScratch
-		row  nullmodel.Row
-		d    []float64
-	}
-	pool := sync.Pool{New: func() any { return new(scratch) }}
-	return func(row, c0 int, vals []float64, wts []int64) {
-		sc := pool.Get().(*scratch)
-		defer pool.Put(sc)
-		span, r := &sc.span, &sc.row
-		sc.d = sc.d[:0]
-		for _, v := range vals {
-			sc.d = append(sc.d, 0-v)
-		}
-		r.Set(sc.d, wts)
-		t := bg.Tally()
-		defer t.Done()
-		for k := range fam.Members {
-			runs := fam.Span(k, -1, row, c0, c0+len(vals), span)
-			for i := 0; i < len(runs); i += 2 {
-				t.Add(k, r, int(runs[i])-c0, int(runs[i+1])-c0)
-			}
-		}
-	}
 }
 
 // mustLayout returns a layout of 1000 values evenly spread over [lo, hi]
@@ -436,6 +433,47 @@ func bruteTally(g *extent.Grid, fam *extent.Family, bg *nullmodel.Background) fu
 				}
 			}
 			bg.Add(k, d, wk)
+		}
+	}
+}
+
+// TestFloorBinnerCell checks floorBinner against the layout's Locate and
+// FloorBin, which define the bins: for values drawn at, next to and
+// between the layout's values and the floor grid's edges, v is in its own
+// cell, a second value u is in v's cell iff Locate places both in the
+// same exact bin, and the floor bins of nullmodel's rule (floor(v * s),
+// -1 for a product underflowing to -0) are FloorBin's.
+func TestFloorBinnerCell(t *testing.T) {
+	layout, err := metrics.NewLayout([]float64{-100, -37.5, -5, 32, 33, 90}, 64, metrics.WithHistFloor(4))
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := newFloorBinner(layout)
+	if b.FloorScale() != 1.0/16 {
+		t.Fatalf("floor scale %v, want 2^-4", b.FloorScale())
+	}
+	var probes []float64
+	for _, x := range []float64{-112, -100, -96, -37.5, -32, -16, -5, 0, 16, 32, 33, 48, 90, 96} {
+		probes = append(probes, x, math.Nextafter(x, math.Inf(-1)), math.Nextafter(x, math.Inf(1)), x+0.25, x-3.5)
+	}
+	probes = append(probes, math.Copysign(0, -1), -1e-310)
+	in := func(u, lo, hi float64, closed bool) bool { return lo < u && u < hi || closed && u == lo }
+	for _, v := range probes {
+		lo, hi, closed := b.Cell(v)
+		if !in(v, lo, hi, closed) {
+			t.Errorf("%v: not in its own cell (%v, %v) closed %v", v, lo, hi, closed)
+		}
+		for _, u := range probes {
+			if got, same := in(u, lo, hi, closed), layout.Locate(u) == layout.Locate(v); got != same {
+				t.Errorf("%v in the cell of %v (%v, %v) closed %v: %v, Locate says %v", u, v, lo, hi, closed, got, same)
+			}
+		}
+		x := math.Floor(v * b.FloorScale())
+		if x == 0 && v < 0 {
+			x = -1
+		}
+		if x != float64(layout.FloorBin(v)) {
+			t.Errorf("%v: floor bin %v, FloorBin %d", v, x, layout.FloorBin(v))
 		}
 	}
 }

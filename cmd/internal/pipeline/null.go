@@ -2,27 +2,15 @@ package pipeline
 
 import (
 	"fmt"
-	"sync"
 	"time"
 
 	"areasweep/cmd/internal/pass"
-	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
 	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
 )
-
-// tallyScratch is one goroutine's row buffers for the sorting-bias tally.
-type tallyScratch struct {
-	d    []float64
-	row  nullmodel.Row
-	span extent.SpanScratch
-}
-
-// tallyPool recycles the row buffers of the sorting-bias tally.
-var tallyPool = sync.Pool{New: func() any { return new(tallyScratch) }}
 
 // distanceNull is what the distance-only null's pass keeps besides its
 // sums: the training points' index and each extent's distance tally.
@@ -54,30 +42,8 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	g := s.grid
 	field := pass.DistanceNull(g, ix)
 	dn := &distanceNull{ix: ix}
-	fam := s.fam
-	// The row's distances (minus the null's values) are prepared once; each
-	// ok member's cells of the row, taken from its runs, go to its own
-	// tally.
-	rows := func(row, c0 int, vals []float64, w []int64) {
-		sc := tallyPool.Get().(*tallyScratch)
-		defer tallyPool.Put(sc)
-		sc.d = sc.d[:0]
-		for _, v := range vals {
-			sc.d = append(sc.d, 0-v)
-		}
-		sc.row.Set(sc.d, w)
-		t := dn.bg.Tally()
-		defer t.Done()
-		for k, mem := range fam.Members {
-			if mem.Status != vocab.StatusOK {
-				continue
-			}
-			runs := fam.Span(k, -1, row, c0, c0+len(vals), &sc.span)
-			for i := 0; i < len(runs); i += 2 {
-				t.Add(k, &sc.row, int(runs[i])-c0, int(runs[i+1])-c0)
-			}
-		}
-	}
+	// The sorting-bias tally of every ok member, on the pass's rows.
+	rows := pass.NullTally(s.fam, &dn.bg)
 	p := &Plan{Index: i, Model: s.Passes()[i], src: pass.NewVirtual(g, field), rows: rows, null: dn}
 	// The null's fine histogram (Boyce) never goes below the floor grid of
 	// about far/histBins, so the bounds of a cell can be checked against
