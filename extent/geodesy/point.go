@@ -127,3 +127,59 @@ func (ix *Index) chordBounds(st *query, kq float64) (lo, hi float64) {
 	hi = withMargin(sigma*rectRadius*k*(1+1e-9)) + marginAbs
 	return lo, hi
 }
+
+// Near is a short list of sites, those that may be nearest to some point
+// of a small area, for cheap bounds at many points of it (Bounds). Fill it
+// with Index.NearSites; the zero value is an empty list.
+type Near struct {
+	ix    *Index
+	slots []int32
+}
+
+// NearSites fills n with every site that may lie within radius metres
+// (geodesic) of pt: a superset from the two lower bounds of Index, like
+// Within. For a point x at most rho from pt, whose nearest site is at most
+// radius - rho from pt (e.g. radius = hi + 2 rho with hi >= the nearest
+// distance at pt), the nearest site of x is in the list.
+func (ix *Index) NearSites(pt *Point, radius float64, n *Near) {
+	n.ix, n.slots = ix, n.slots[:0]
+	if !pt.ok || math.IsNaN(radius) || radius < 0 {
+		return
+	}
+	st := query{lat: pt.lat, lon: pt.lon, q: pt.q, p: pt.p, skip: -1, cap: math.Inf(1), s: radius}
+	st.setLimits()
+	bp := candPool.Get().(*[]cand)
+	buf := (*bp)[:0]
+	ix.collect(0, len(ix.pts), &st, &buf)
+	for _, c := range buf {
+		n.slots = append(n.slots, c.slot)
+	}
+	if cap(buf) <= maxPooledCands {
+		*bp = buf[:0]
+		candPool.Put(bp)
+	}
+}
+
+// Len is the number of sites in the list.
+func (n *Near) Len() int { return len(n.slots) }
+
+// Bounds returns NearestBounds' interval at pt computed over the listed
+// sites only: lo <= s <= hi for s the geodesic distance from pt to its
+// nearest site, provided that site is in the list (see NearSites). The
+// listed site of smallest chord gives both bounds, as in NearestBounds,
+// at a cost of one squared chord per listed site. ok is false for an
+// empty list or an invalid point.
+func (n *Near) Bounds(pt *Point) (lo, hi float64, ok bool) {
+	if len(n.slots) == 0 || !pt.ok {
+		return 0, 0, false
+	}
+	ix := n.ix
+	st := query{lat: pt.lat, lon: pt.lon, q: pt.q, bestD2: math.Inf(1), bestAt: -1}
+	for _, s := range n.slots {
+		if d := d2(&ix.pts[s], &st.q); d < st.bestD2 {
+			st.bestD2, st.bestAt = d, int(s)
+		}
+	}
+	lo, hi = ix.chordBounds(&st, pt.k)
+	return lo, hi, true
+}

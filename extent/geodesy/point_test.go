@@ -68,3 +68,48 @@ func TestPointQueries(t *testing.T) {
 		t.Errorf("BoundsAt at latitude 95: (%v, %v, %d), want (NaN, NaN, -1)", lo, hi, slot)
 	}
 }
+
+// TestNearBounds: for points x within rho of a centre c, the sites
+// NearSites lists within hi(c) + 2 rho hold x's nearest site, and
+// Near.Bounds brackets x's exact nearest distance (Nearest).
+func TestNearBounds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 4))
+	lats := make([]float64, 300)
+	lons := make([]float64, 300)
+	for i := range lats {
+		lats[i] = 40 + 15*rng.Float64()
+		lons[i] = -5 + 25*rng.Float64()
+	}
+	ix, err := NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var n Near
+	listed := 0
+	for q := 0; q < 300; q++ {
+		clat, clon := 35+25*rng.Float64(), -10+35*rng.Float64()
+		c := NewPoint(clat, clon)
+		const rho = 20e3 // metres; x below lies within about 14 km of c
+		_, hi, _ := ix.BoundsAt(&c, 0, -1)
+		ix.NearSites(&c, hi+2*rho, &n)
+		if n.Len() == 0 {
+			t.Fatalf("(%v, %v): no site listed within %v m", clat, clon, hi+2*rho)
+		}
+		listed += n.Len()
+		for range 20 {
+			x := NewPoint(clat+0.09*(rng.Float64()-0.5), clon+0.12*(rng.Float64()-0.5))
+			_, d := ix.Nearest(x.Lat(), x.Lon(), 0)
+			lo, hi, ok := n.Bounds(&x)
+			if !ok || d < lo || d > hi {
+				t.Fatalf("(%v, %v): distance %v, Near bounds [%v, %v] (ok %v)", x.Lat(), x.Lon(), d, lo, hi, ok)
+			}
+		}
+	}
+	if listed >= 300*300 {
+		t.Errorf("NearSites listed every site every time")
+	}
+	var empty Near
+	if _, _, ok := empty.Bounds(&Point{}); ok {
+		t.Error("an empty list gave bounds")
+	}
+}
