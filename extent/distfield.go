@@ -81,8 +81,11 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				steps.measure(g, pts, r1-r0)
 				var classify func(t0, t1, c0, c1 int)
 				classify = func(t0, t1, c0, c1 int) {
+					hi, rho := math.Inf(1), 0.0
 					if t1-t0 > 2 && c1-c0 > 2 {
-						if b.wholeTile(ix, maxD, gap, set, pts, r0, t0, t1, c0, c1, rhos) {
+						var ok bool
+						ok, hi, rho = b.wholeTile(ix, maxD, gap, set, pts, r0, t0, t1, c0, c1, rhos)
+						if ok {
 							return
 						}
 						if t1-t0 > walkSide && c1-c0 > walkSide {
@@ -94,7 +97,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 							return
 						}
 					}
-					walkTile(ix, reach, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width)
+					walkTile(ix, reach, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width, hi, rho)
 				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width))
@@ -168,16 +171,18 @@ func intervalGap(cuts []float64, lo, hi float64) float64 {
 }
 
 // wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
-// one query when it can, and reports whether it did. lons and lats hold
-// the rows of the band starting at row band.
+// one query when it can, and reports whether it did. pts holds the rows
+// of the band starting at row band. When it did not, hi bounds the centre
+// cell's distance from above and rho the distance from the centre cell to
+// any cell of the tile (hi is +Inf when either is unknown).
 func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	pts *bandPoints, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) bool {
+	pts *bandPoints, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
 	g := b.g
 	lons, lats := pts.lons, pts.lats
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
 	clat, clon := lats[kc][cc], lons[kc][cc]
 	if math.IsNaN(clat) {
-		return false
+		return false, math.Inf(1), 0
 	}
 	// On latitude-longitude grids, tiles of one shape in one band have the
 	// same radius (to rounding far inside the margin below): it is
@@ -188,7 +193,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 		for _, k := range []int{r0 - band, r1 - 1 - band} {
 			for _, c := range []int{c0, c1 - 1} {
 				if math.IsNaN(lats[k][c]) {
-					return false
+					return false, math.Inf(1), 0
 				}
 				rho = math.Max(rho, sphereDistance(clat, clon, lats[k][c], lons[k][c]))
 			}
@@ -207,18 +212,19 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 	// any value in [lo, hi] is then in the class of every cell.
 	d := math.Inf(1)
 	pt := pts.at(kc, cc)
-	if lo, hi := pts.bounds(ix, &pt, maxD+rho); !math.IsInf(hi, 1) && !(lo-rho > maxD) {
+	lo, hi := pts.bounds(ix, &pt, maxD+rho)
+	if !math.IsInf(hi, 1) && !(lo-rho > maxD) {
 		if room := gap(lo, hi); room > rho {
 			d = lo
 		} else if room+(hi-lo) <= rho && hi-rho <= maxD {
 			// The exact distance lies in [lo, hi], so its gap from the
 			// cuts is at most room + (hi - lo), and it is at most hi: it
 			// would not settle the tile either.
-			return false
+			return false, math.Inf(1), 0
 		} else {
 			_, d = ix.NearestAt(&pt, maxD+rho)
 			if !(d-rho > maxD) && !(gap(d, d) > rho) {
-				return false
+				return false, math.Inf(1), 0
 			}
 		}
 	}
@@ -228,7 +234,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 			set(base+c, d)
 		}
 	}
-	return true
+	return true, hi, rho
 }
 
 // sphereDistance is the great-circle distance in metres between two points
@@ -256,9 +262,9 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // is queried; a little way off, one query settles a cone of cells below
 // and to the right.
 func walkTile(ix *geodesy.Index, reach reachBox, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int) {
+	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int, hi, rho float64) {
 	n := c1 - c0
-	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1)
+	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, hi, rho)
 	prevD, prevRoom := st.prevD[:n], st.prevRoom[:n]
 	curD, curRoom := st.curD[:n], st.curRoom[:n]
 	for r := t0; r < t1; r++ {
@@ -355,20 +361,23 @@ const maxNear = 32
 
 // nearSites returns the sites that may be nearest to some cell of the tile
 // of band rows [t0,t1) and columns [c0,c1): with c its centre cell, rho a
-// bound on the distance from c to any cell of the tile (as in wholeTile)
-// and hi a bound on c's nearest distance, every site within hi + 2 rho of
-// c, since a cell x has d(x) <= d(c) + rho and its nearest site lies within
+// bound on the distance from c to any cell of the tile and hi a bound on
+// c's nearest distance (both wholeTile's when hi is finite, else measured
+// as wholeTile does), every site within hi + 2 rho of c, since a cell x has d(x) <= d(c) + rho and its nearest site lies within
 // rho + d(x) of c. The list is empty (so unused) when it would be longer
 // than maxNear, when a coordinate is missing, or when no site lies within
 // maxD + rho of c (then no cell has one within maxD): nearSites then
 // returns nil.
-func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int) *geodesy.Near {
+func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int, hi, rho float64) *geodesy.Near {
 	kc, cc := (t0+t1)/2-band, (c0+c1)/2
+	pt := pts.at(kc, cc)
+	if !math.IsInf(hi, 1) {
+		return st.listNear(ix, &pt, hi+2*rho)
+	}
 	clat, clon := pts.lats[kc][cc], pts.lons[kc][cc]
 	if math.IsNaN(clat) {
 		return nil
 	}
-	rho := 0.0
 	for _, k := range []int{t0 - band, t1 - 1 - band} {
 		for _, c := range []int{c0, c1 - 1} {
 			if math.IsNaN(pts.lats[k][c]) {
@@ -378,12 +387,17 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 		}
 	}
 	rho = rho*1.02 + 1
-	pt := pts.at(kc, cc)
-	_, hi := pts.bounds(ix, &pt, maxD+rho)
+	_, hi = pts.bounds(ix, &pt, maxD+rho)
 	if math.IsInf(hi, 1) || math.IsNaN(hi) {
 		return nil
 	}
-	ix.NearSites(&pt, hi+2*rho, &st.near)
+	return st.listNear(ix, &pt, hi+2*rho)
+}
+
+// listNear lists the sites within radius of pt, or returns nil when they
+// are more than maxNear.
+func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float64) *geodesy.Near {
+	ix.NearSites(pt, radius, &st.near)
 	if st.near.Len() > maxNear {
 		return nil
 	}
