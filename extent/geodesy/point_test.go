@@ -71,7 +71,8 @@ func TestPointQueries(t *testing.T) {
 
 // TestNearBounds: for points x within rho of a centre c, the sites
 // NearSites lists within hi(c) + 2 rho hold x's nearest site, and
-// Near.Bounds brackets x's exact nearest distance (Nearest).
+// Near.Bounds brackets x's exact nearest distance (Nearest), with a lower
+// bound never below NearestBounds' and often much closer.
 func TestNearBounds(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 4))
 	lats := make([]float64, 300)
@@ -85,7 +86,7 @@ func TestNearBounds(t *testing.T) {
 		t.Fatal(err)
 	}
 	var n Near
-	listed := 0
+	listed, tighter := 0, 0
 	for q := 0; q < 300; q++ {
 		clat, clon := 35+25*rng.Float64(), -10+35*rng.Float64()
 		c := NewPoint(clat, clon)
@@ -103,10 +104,21 @@ func TestNearBounds(t *testing.T) {
 			if !ok || d < lo || d > hi {
 				t.Fatalf("(%v, %v): distance %v, Near bounds [%v, %v] (ok %v)", x.Lat(), x.Lon(), d, lo, hi, ok)
 			}
+			// The ECEF chord can only tighten NearestBounds' lower bound.
+			lo0, _ := ix.NearestBounds(x.Lat(), x.Lon(), 0)
+			if lo < lo0 {
+				t.Fatalf("(%v, %v): Near lower bound %v below NearestBounds' %v", x.Lat(), x.Lon(), lo, lo0)
+			}
+			if lo > lo0+0.1*(d-lo0) {
+				tighter++
+			}
 		}
 	}
 	if listed >= 300*300 {
 		t.Errorf("NearSites listed every site every time")
+	}
+	if tighter < 300*20/4 {
+		t.Errorf("the lower bound closed a tenth of NearestBounds' gap for only %d of %d points", tighter, 300*20)
 	}
 	var empty Near
 	if _, _, ok := empty.Bounds(&Point{}); ok {
