@@ -97,7 +97,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 							return
 						}
 					}
-					walkTile(ix, reach, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width, hi, rho)
+					walkTile(ix, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width, hi, rho)
 				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width))
@@ -260,11 +260,13 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // are the same along a row; elsewhere only the left one, measured) and is
 // queried when none is left. Near a cut the rooms are small and every cell
 // is queried; a little way off, one query settles a cone of cells below
-// and to the right.
-func walkTile(ix *geodesy.Index, reach reachBox, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int, hi, rho float64) {
+// and to the right. tileHi and tileRho are wholeTile's for this tile, or
+// +Inf and 0 (see nearSites). Cells outside the reach box (pts.in) are
+// farther than maxD.
+func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
+	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int, tileHi, tileRho float64) {
 	n := c1 - c0
-	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, hi, rho)
+	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho)
 	prevD, prevRoom := st.prevD[:n], st.prevRoom[:n]
 	curD, curRoom := st.curD[:n], st.curRoom[:n]
 	for r := t0; r < t1; r++ {
