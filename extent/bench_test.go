@@ -2,7 +2,13 @@ package extent
 
 import (
 	"fmt"
+	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"syscall"
 	"testing"
 )
 
@@ -105,4 +111,91 @@ func BenchmarkOutline(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// BenchmarkBuildStudy measures building the families of 13, 20 and 60
+// extents of `cmd/sweepbench` on the study it generated, named by
+// AREASWEEP_BENCH_STUDY (a folder holding model1.tif, occurrences.csv and
+// region.geojson, e.g. /tmp/areasweep-bench/cells27000000 after
+// `go run ./cmd/sweepbench -cells 27e6`); skipped when unset. The family is
+// sweepbench's (familyFlags): base, hull and whole raster, then region
+// buffers every 20 km in and out and point buffers every 25 km, built
+// unclipped as a run builds it. It reports the process CPU time (user +
+// system) per build, steadier than wall time on a shared machine.
+func BenchmarkBuildStudy(b *testing.B) {
+	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
+	if dir == "" {
+		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
+	}
+	Configure()
+	g, err := OpenGrid(filepath.Join(dir, "model1.tif"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
+	for _, n := range []int{13, 20, 60} {
+		// As cmd/sweepbench's familyFlags.
+		var region, points []float64
+		for i := 0; i < n-3; i++ {
+			if i%2 == 0 {
+				k := float64(i/2 + 1)
+				d := 20 * math.Ceil(k/2)
+				if int(k)%2 == 0 {
+					d = -d
+				}
+				region = append(region, d)
+			} else {
+				points = append(points, 25*float64(i/2+1))
+			}
+		}
+		spec := Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
+		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
+			b.ReportAllocs()
+			c0 := processCPU()
+			for i := 0; i < b.N; i++ {
+				if _, err := Build(g, nil, spec, trainCells, testCells); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric((processCPU()-c0)/float64(b.N), "cpu-s/op")
+		})
+	}
+}
+
+// benchPoints reads a sweepbench occurrence file (longitude,latitude,role
+// with a header): the training points and the grid cells of both roles.
+func benchPoints(b *testing.B, g *Grid, path string) (train []LonLat, trainCells, testCells []int) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
+		f := strings.Split(line, ",")
+		lon, err1 := strconv.ParseFloat(f[0], 64)
+		lat, err2 := strconv.ParseFloat(f[1], 64)
+		if err1 != nil || err2 != nil || len(f) < 3 {
+			b.Fatalf("%s: bad line %q", path, line)
+		}
+		cell := -1
+		if c, r, ok := g.CellOf(lon, lat); ok {
+			cell = r*g.Width + c
+		}
+		if f[2] == "train" {
+			train = append(train, LonLat{Lon: lon, Lat: lat})
+			trainCells = append(trainCells, cell)
+		} else {
+			testCells = append(testCells, cell)
+		}
+	}
+	return train, trainCells, testCells
+}
+
+// processCPU is the process's CPU time so far (user + system), seconds.
+func processCPU() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return math.NaN()
+	}
+	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
 }

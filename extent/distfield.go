@@ -13,6 +13,10 @@ import (
 // with one query when no cut passes through them.
 const tileSide = 16
 
+// walkSide is the side of the tiles that walkTile classifies cell by
+// cell when one query does not settle them.
+const walkSide = 8
+
 // distanceField calls rowDone(row, near) once for every row of the grid,
 // from several goroutines (never twice for a row): near[j] holds the runs
 // of the row's cells whose geodesic distance from the cell centre to the
@@ -29,13 +33,22 @@ const tileSide = 16
 //     (times a small safety factor); when every cut is farther than rho
 //     from D, or D - rho > maxD, every cell of the tile is in D's class and
 //     receives D; otherwise the tile is split in four and each quarter tried
-//     the same way;
-//   - tiles of two cells or fewer a side have their rows walked: after an
-//     exact query at distance D, the following cells whose summed
-//     centre-to-centre steps stay below the gap between D and the nearest
-//     cut receive D.
+//     the same way, down to tiles of walkSide cells a side. D comes from the index's chord bounds [lo, hi] when they
+//     settle the tile; the exact distance is measured only when it could
+//     (some value of [lo, hi] would settle it), which is rare: the bounds
+//     are within 0.17% of D, far narrower than rho;
+//   - a tile of walkSide cells or fewer a side that one query does not
+//     settle is walked cell by cell (walkTile): a cell takes the class of a
+//     neighbour already classified while the neighbour's room (its gap to
+//     the nearest cut) exceeds the step between them, and is queried
+//     otherwise, against the few sites that may be nearest to some cell of
+//     the tile (geodesy.Near) when they are few.
 //
-// The cost so stays near the buffers' edges instead of over their area.
+// The cost so stays near the buffers' edges instead of over their area,
+// and all cuts share one field: a cell is measured exactly only when its
+// bounds straddle one of them. Queries go through prepared points
+// (bandPoints), each tree query starting from the previous one's
+// chord-nearest site.
 func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
 	g := b.g
 	gap := func(lo, hi float64) float64 { return intervalGap(cuts, lo, hi) }
@@ -47,7 +60,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 			defer wg.Done()
 			lons := make([][]float64, tileSide)
 			lats := make([][]float64, tileSide)
-			steps := make([]float64, tileSide)
+			steps := newBandSteps()
 			for k := range lons {
 				lons[k] = make([]float64, g.Width)
 				lats[k] = make([]float64, g.Width)
@@ -55,6 +68,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 			dist := make([]float64, tileSide*g.Width)
 			open := make([]int32, len(cuts))
 			rhos := map[[3]int]float64{}
+			pts := &bandPoints{lons: lons, lats: lats, rows: make([]geodesy.Parallel, tileSide), hint: -1, reach: reach}
 			for r0 := range bands {
 				clear(rhos)
 				off := r0 * g.Width
@@ -62,31 +76,28 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				r1 := min(r0+tileSide, g.Height)
 				for r := r0; r < r1; r++ {
 					k := r - r0
-					g.RowLonLat(r, lons[k], lats[k])
-					// On latitude-longitude grids the step between
-					// neighbouring centres is the same along the row.
-					steps[k] = -1
-					if g.Geographic && g.Width > 1 {
-						steps[k] = geodesy.Distance(lats[k][0], lons[k][0], lats[k][1], lons[k][1])
-					}
+					pts.prepareRow(g, r, k)
 				}
+				steps.measure(g, pts, r1-r0)
 				var classify func(t0, t1, c0, c1 int)
 				classify = func(t0, t1, c0, c1 int) {
+					hi, rho := math.Inf(1), 0.0
 					if t1-t0 > 2 && c1-c0 > 2 {
-						if b.wholeTile(ix, maxD, gap, set, lons, lats, r0, t0, t1, c0, c1, rhos) {
+						var ok bool
+						ok, hi, rho = b.wholeTile(ix, maxD, gap, set, pts, r0, t0, t1, c0, c1, rhos)
+						if ok {
 							return
 						}
-						tm, cm := (t0+t1)/2, (c0+c1)/2
-						classify(t0, tm, c0, cm)
-						classify(t0, tm, cm, c1)
-						classify(tm, t1, c0, cm)
-						classify(tm, t1, cm, c1)
-						return
+						if t1-t0 > walkSide && c1-c0 > walkSide {
+							tm, cm := (t0+t1)/2, (c0+c1)/2
+							classify(t0, tm, c0, cm)
+							classify(t0, tm, cm, c1)
+							classify(tm, t1, c0, cm)
+							classify(tm, t1, cm, c1)
+							return
+						}
 					}
-					for r := t0; r < t1; r++ {
-						k := r - r0
-						walkRow(ix, reach, maxD, gap, set, lons[k], lats[k], steps[k], r*g.Width, c0, c1)
-					}
+					walkTile(ix, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width, hi, rho)
 				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width))
@@ -160,15 +171,18 @@ func intervalGap(cuts []float64, lo, hi float64) float64 {
 }
 
 // wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
-// one query when it can, and reports whether it did. lons and lats hold
-// the rows of the band starting at row band.
+// one query when it can, and reports whether it did. pts holds the rows
+// of the band starting at row band. When it did not, hi bounds the centre
+// cell's distance from above and rho the distance from the centre cell to
+// any cell of the tile (hi is +Inf when either is unknown).
 func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	lons, lats [][]float64, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) bool {
+	pts *bandPoints, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
 	g := b.g
+	lons, lats := pts.lons, pts.lats
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
 	clat, clon := lats[kc][cc], lons[kc][cc]
 	if math.IsNaN(clat) {
-		return false
+		return false, math.Inf(1), 0
 	}
 	// On latitude-longitude grids, tiles of one shape in one band have the
 	// same radius (to rounding far inside the margin below): it is
@@ -179,7 +193,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 		for _, k := range []int{r0 - band, r1 - 1 - band} {
 			for _, c := range []int{c0, c1 - 1} {
 				if math.IsNaN(lats[k][c]) {
-					return false
+					return false, math.Inf(1), 0
 				}
 				rho = math.Max(rho, sphereDistance(clat, clon, lats[k][c], lons[k][c]))
 			}
@@ -197,13 +211,20 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 	// Bounds from the chord stage settle most tiles without a geodesic;
 	// any value in [lo, hi] is then in the class of every cell.
 	d := math.Inf(1)
-	if lo, hi := ix.NearestBounds(clat, clon, maxD+rho); !math.IsInf(hi, 1) && !(lo-rho > maxD) {
-		if gap(lo, hi) > rho {
+	pt := pts.at(kc, cc)
+	lo, hi := pts.bounds(ix, &pt, maxD+rho)
+	if !math.IsInf(hi, 1) && !(lo-rho > maxD) {
+		if room := gap(lo, hi); room > rho {
 			d = lo
+		} else if room+(hi-lo) <= rho && hi-rho <= maxD {
+			// The exact distance lies in [lo, hi], so its gap from the
+			// cuts is at most room + (hi - lo), and it is at most hi: it
+			// would not settle the tile either.
+			return false, math.Inf(1), 0
 		} else {
-			_, d = ix.Nearest(clat, clon, maxD+rho)
+			_, d = ix.NearestAt(&pt, maxD+rho)
 			if !(d-rho > maxD) && !(gap(d, d) > rho) {
-				return false
+				return false, math.Inf(1), 0
 			}
 		}
 	}
@@ -213,7 +234,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 			set(base+c, d)
 		}
 	}
-	return true
+	return true, hi, rho
 }
 
 // sphereDistance is the great-circle distance in metres between two points
@@ -227,43 +248,192 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 	return 2 * geodesy.SemiMajor * math.Asin(math.Min(1, math.Sqrt(h)))
 }
 
-// walkRow classifies cells [c0,c1) of one row (cells base+c), querying
-// where needed and skipping ahead while the class cannot change.
-func walkRow(ix *geodesy.Index, reach reachBox, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	lons, lats []float64, rowStep float64, base, c0, c1 int) {
-	for c := c0; c < c1; c++ {
-		if math.IsNaN(lats[c]) || !reach.has(lons[c], lats[c]) {
-			set(base+c, math.Inf(1))
-			continue
+// walkTile classifies the cells of rows [t0,t1) and columns [c0,c1) of
+// the band starting at row band (cell (r, c) is r*Width+c), row after row,
+// querying only where needed. A query at cell y gives a value D in the
+// class of d(y) with a room g: every value within g of D is in that class
+// (g = gap(lo, hi) from the bounds, or gap(d, d) from the exact distance).
+// The distance is 1-Lipschitz, so a neighbour x at geodesic step s from y
+// is in D's class with room g - s while that stays positive; each cell
+// takes the largest room offered by its left, upper-left, upper and
+// upper-right neighbours (on latitude-longitude grids, where those steps
+// are the same along a row; elsewhere only the left one, measured) and is
+// queried when none is left. Near a cut the rooms are small and every cell
+// is queried; a little way off, one query settles a cone of cells below
+// and to the right. tileHi and tileRho are wholeTile's for this tile, or
+// +Inf and 0 (see nearSites). Cells outside the reach box (pts.in) are
+// farther than maxD.
+func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
+	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int, tileHi, tileRho float64) {
+	n := c1 - c0
+	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho)
+	prevD, prevRoom := st.prevD[:n], st.prevRoom[:n]
+	curD, curRoom := st.curD[:n], st.curRoom[:n]
+	for r := t0; r < t1; r++ {
+		k := r - band
+		lons, lats := pts.lons[k], pts.lats[k]
+		hs := st.h[k]
+		up := r > t0 && st.v[k-1] >= 0
+		vs, ds := 0.0, 0.0
+		if up {
+			vs, ds = st.v[k-1], st.diag[k-1]
 		}
-		// Bounds first; the exact distance only when a cut lies between
-		// them. Any value in [lo, hi] is then in the cell's class.
-		lo, hi := ix.NearestBounds(lats[c], lons[c], maxD)
-		if math.IsInf(hi, 1) {
-			set(base+c, hi)
-			continue
-		}
-		d, room := lo, gap(lo, hi)
-		if !(room > 0) {
-			_, d = ix.Nearest(lats[c], lons[c], maxD)
-			if math.IsInf(d, 1) {
-				set(base+c, d)
+		base := r * w
+		for i := 0; i < n; i++ {
+			c := c0 + i
+			curRoom[i] = -1
+			if !pts.in(k, c) {
+				set(base+c, math.Inf(1))
 				continue
 			}
-			room = gap(d, d)
-		}
-		set(base+c, d)
-		for c+1 < c1 && !math.IsNaN(lats[c+1]) {
-			if rowStep >= 0 {
-				room -= rowStep
-			} else {
-				room -= geodesy.Distance(lats[c], lons[c], lats[c+1], lons[c+1])
+			// The largest room a neighbour passes on.
+			room, d := 0.0, 0.0
+			if i > 0 && curRoom[i-1] > 0 {
+				step := hs
+				if step < 0 {
+					step = geodesy.Distance(lats[c-1], lons[c-1], lats[c], lons[c])
+				}
+				if g := curRoom[i-1] - step; g > room {
+					room, d = g, curD[i-1]
+				}
 			}
-			if room <= 0 || !reach.has(lons[c+1], lats[c+1]) {
-				break
+			if up {
+				if g := prevRoom[i] - vs; g > room {
+					room, d = g, prevD[i]
+				}
+				if i > 0 {
+					if g := prevRoom[i-1] - ds; g > room {
+						room, d = g, prevD[i-1]
+					}
+				}
+				if i+1 < n {
+					if g := prevRoom[i+1] - ds; g > room {
+						room, d = g, prevD[i+1]
+					}
+				}
 			}
-			c++
+			if room <= 0 {
+				// Bounds first; the exact distance only when a cut lies
+				// between them. Any value in [lo, hi] is then in the
+				// cell's class.
+				pt := pts.at(k, c)
+				lo, hi, ok := 0.0, 0.0, false
+				if near != nil {
+					lo, hi, ok = near.Bounds(&pt)
+				}
+				if !ok {
+					lo, hi = pts.bounds(ix, &pt, maxD)
+				}
+				if math.IsInf(hi, 1) {
+					set(base+c, hi)
+					continue
+				}
+				d, room = lo, gap(lo, hi)
+				if !(room > 0) {
+					_, d = ix.NearestAt(&pt, maxD)
+					if math.IsInf(d, 1) {
+						set(base+c, d)
+						continue
+					}
+					room = gap(d, d)
+				}
+			}
 			set(base+c, d)
+			curD[i], curRoom[i] = d, room
+		}
+		prevD, curD = curD, prevD
+		prevRoom, curRoom = curRoom, prevRoom
+	}
+}
+
+// bandSteps holds the geodesic steps between neighbouring cell centres of
+// a band on a latitude-longitude grid (the same all along a row; -1
+// elsewhere, where walkTile measures the horizontal steps it needs and
+// passes no room between rows), and walkTile's scratch.
+type bandSteps struct {
+	h                              []float64 // band row k: between horizontal neighbours
+	v, diag                        []float64 // between band rows k and k+1: vertical, diagonal neighbours
+	prevD, prevRoom, curD, curRoom []float64
+	near                           geodesy.Near
+}
+
+// maxNear is the longest list of sites walkTile bounds its cells
+// against; with more, each cell's bounds come from the index's tree.
+const maxNear = 32
+
+// nearSites returns the sites that may be nearest to some cell of the tile
+// of band rows [t0,t1) and columns [c0,c1): with c its centre cell, rho a
+// bound on the distance from c to any cell of the tile and hi a bound on
+// c's nearest distance (both wholeTile's when hi is finite, else measured
+// as wholeTile does), every site within hi + 2 rho of c, since a cell x has d(x) <= d(c) + rho and its nearest site lies within
+// rho + d(x) of c. The list is empty (so unused) when it would be longer
+// than maxNear, when a coordinate is missing, or when no site lies within
+// maxD + rho of c (then no cell has one within maxD): nearSites then
+// returns nil.
+func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int, hi, rho float64) *geodesy.Near {
+	kc, cc := (t0+t1)/2-band, (c0+c1)/2
+	pt := pts.at(kc, cc)
+	if !math.IsInf(hi, 1) {
+		return st.listNear(ix, &pt, hi+2*rho)
+	}
+	clat, clon := pts.lats[kc][cc], pts.lons[kc][cc]
+	if math.IsNaN(clat) {
+		return nil
+	}
+	for _, k := range []int{t0 - band, t1 - 1 - band} {
+		for _, c := range []int{c0, c1 - 1} {
+			if math.IsNaN(pts.lats[k][c]) {
+				return nil
+			}
+			rho = math.Max(rho, sphereDistance(clat, clon, pts.lats[k][c], pts.lons[k][c]))
+		}
+	}
+	rho = rho*1.02 + 1
+	_, hi = pts.bounds(ix, &pt, maxD+rho)
+	if math.IsInf(hi, 1) || math.IsNaN(hi) {
+		return nil
+	}
+	return st.listNear(ix, &pt, hi+2*rho)
+}
+
+// listNear lists the sites within radius of pt, or returns nil when they
+// are more than maxNear.
+func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float64) *geodesy.Near {
+	ix.NearSites(pt, radius, &st.near)
+	if st.near.Len() > maxNear {
+		return nil
+	}
+	return &st.near
+}
+
+func newBandSteps() *bandSteps {
+	st := &bandSteps{h: make([]float64, tileSide), v: make([]float64, tileSide), diag: make([]float64, tileSide)}
+	for _, p := range []*[]float64{&st.prevD, &st.prevRoom, &st.curD, &st.curRoom} {
+		*p = make([]float64, tileSide)
+	}
+	return st
+}
+
+// measure fills the steps of the band's rows [0, n).
+func (st *bandSteps) measure(g *Grid, pts *bandPoints, n int) {
+	for k := 0; k < tileSide; k++ {
+		st.h[k], st.v[k], st.diag[k] = -1, -1, -1
+	}
+	if !g.Geographic || g.Width < 2 {
+		return
+	}
+	for k := 0; k < n; k++ {
+		lats, lons := pts.lats[k], pts.lons[k]
+		// Each step is rounded up far beyond PROJ's error, so that a
+		// room is never overstated.
+		up := func(s float64) float64 { return s*(1+1e-9) + 1e-6 }
+		st.h[k] = up(geodesy.Distance(lats[0], lons[0], lats[1], lons[1]))
+		if k+1 < n {
+			nl := pts.lats[k+1]
+			st.v[k] = up(geodesy.Distance(lats[0], lons[0], nl[0], lons[0]))
+			// Both diagonals have this length: the grid is symmetric
+			// about every meridian through a cell centre.
+			st.diag[k] = up(geodesy.Distance(lats[0], lons[0], nl[1], lons[1]))
 		}
 	}
 }
@@ -325,4 +495,84 @@ func (r reachBox) has(lon, lat float64) bool {
 		d = 360 - d
 	}
 	return d <= r.lonH
+}
+
+// bandPoints prepares the cells of a band of rows for index queries: on a
+// latitude-longitude grid every row is one parallel and every column one
+// meridian, so a cell's point costs a few multiplications from its row's
+// geodesy.Parallel and its column's sine and cosine (computed once per
+// worker); elsewhere each queried cell is prepared on its own. It also
+// keeps the last chord-nearest site as the hint of the next bounds query:
+// cells queried one after another are neighbours, with the same nearest
+// site or one close to it.
+type bandPoints struct {
+	lons, lats     [][]float64 // the band's rows
+	rows           []geodesy.Parallel
+	perRow         bool      // rows are parallels and columns meridians
+	colLon         []float64 // each column's longitude (perRow)
+	colSin, colCos []float64 // sine and cosine of each column's longitude
+	colIn          []bool    // whether the column's longitude is in the reach box
+	rowIn          [tileSide]bool
+	reach          reachBox
+	hint           int
+}
+
+// prepareRow fills band row k with the coordinates of grid row r and
+// prepares it. On a latitude-longitude grid the row's longitudes are the
+// worker's one copy of the columns' (shared by every row, never written)
+// and its latitude is one number.
+func (p *bandPoints) prepareRow(g *Grid, r, k int) {
+	p.perRow = g.Geographic
+	if !p.perRow {
+		g.RowLonLat(r, p.lons[k], p.lats[k])
+		return
+	}
+	if p.colLon == nil {
+		p.colLon = make([]float64, g.Width)
+		g.RowLonLat(r, p.colLon, p.lats[k])
+		p.colSin = make([]float64, g.Width)
+		p.colCos = make([]float64, g.Width)
+		p.colIn = make([]bool, g.Width)
+		for c, lon := range p.colLon {
+			p.colSin[c], p.colCos[c] = math.Sincos(lon * math.Pi / 180)
+			// has is separable on such grids: the latitude test
+			// below, the longitude test here.
+			p.colIn[c] = p.reach.has(lon, p.reach.south)
+		}
+	}
+	p.lons[k] = p.colLon
+	_, lat := g.Centre(0, r)
+	lats := p.lats[k]
+	for c := range lats {
+		lats[c] = lat
+	}
+	p.rows[k] = geodesy.NewParallel(lat)
+	p.rowIn[k] = lat >= p.reach.south && lat <= p.reach.north
+}
+
+// in reports whether cell (band row k, column c) has coordinates and lies
+// in the reach box.
+func (p *bandPoints) in(k, c int) bool {
+	if p.perRow {
+		return p.rowIn[k] && p.colIn[c]
+	}
+	lat := p.lats[k][c]
+	return !math.IsNaN(lat) && p.reach.has(p.lons[k][c], lat)
+}
+
+// at returns the point of cell (band row k, column c).
+func (p *bandPoints) at(k, c int) geodesy.Point {
+	if p.perRow {
+		return p.rows[k].Point(p.lons[k][c], p.colSin[c], p.colCos[c])
+	}
+	return geodesy.NewPoint(p.lats[k][c], p.lons[k][c])
+}
+
+// bounds is ix.NearestBounds at pt, started from the hint.
+func (p *bandPoints) bounds(ix *geodesy.Index, pt *geodesy.Point, maxDist float64) (lo, hi float64) {
+	lo, hi, slot := ix.BoundsAt(pt, maxDist, p.hint)
+	if slot >= 0 {
+		p.hint = slot
+	}
+	return lo, hi
 }

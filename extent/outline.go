@@ -151,6 +151,7 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 		var pts [][2]int32
 		cur := start
 		dx, dy := int32(0), int32(0)
+		pinched := false // the ring passes a vertex with two ways on
 		for {
 			used[cur] = true
 			e := edges[cur]
@@ -162,6 +163,7 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 			o := out[vertexKey(e.x1, e.y1)]
 			next := o[0]
 			if o[1] >= 0 {
+				pinched = true
 				// Two ways on: turn left, i.e. towards (dy, -dx).
 				n := edges[o[0]]
 				if sign(n.x1-n.x0) != dy || sign(n.y1-n.y0) != -dx {
@@ -180,8 +182,16 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 		pts = append(pts, pts[0])
 		// A ring that passes a vertex twice (cells touching only at a
 		// corner) is split there into simple rings, as valid polygons
-		// need: an outer ring and a hole touching it at that point.
-		for _, loop := range splitLoops(pts) {
+		// need: an outer ring and a hole touching it at that point. Only
+		// a vertex with two ways on can be passed twice; a ring without
+		// one is already simple (splitLoops would return it whole).
+		loops := [][][2]int32{pts}
+		if pinched {
+			loops = splitLoops(pts)
+		} else if len(pts) <= 3 {
+			loops = nil
+		}
+		for _, loop := range loops {
 			var area int64
 			for i := 1; i < len(loop); i++ {
 				area += int64(loop[i-1][0])*int64(loop[i][1]) - int64(loop[i][0])*int64(loop[i-1][1])

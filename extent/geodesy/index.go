@@ -73,6 +73,7 @@ type Index struct {
 	ids      []int32         // site index of each tree slot
 	axis     []uint8         // split axis of each tree slot (internal nodes)
 	box      [][2][3]float64 // bounding box (min, max) of the range at each mid slot
+	stretch  []float64       // stretchAt(|latitude|) of each tree slot's site
 }
 
 // Rectifying latitude (Helmert's series, Karney 2011 eqs. 3 and 5).
@@ -142,6 +143,8 @@ func NewIndex(lats, lons []float64) (*Index, error) {
 		ids:  make([]int32, n),
 		axis: make([]uint8, n),
 		box:  make([][2][3]float64, n),
+
+		stretch: make([]float64, n),
 	}
 	for i := range n {
 		if !(math.Abs(lats[i]) <= 90) {
@@ -152,6 +155,7 @@ func NewIndex(lats, lons []float64) (*Index, error) {
 		}
 		ix.pts[i], ix.ecef[i] = siteVectors(lats[i], lons[i])
 		ix.ids[i] = int32(i)
+		ix.stretch[i] = stretchAt(math.Abs(lats[i]))
 	}
 	ix.build(0, n)
 	return ix, nil
@@ -257,6 +261,7 @@ func (ix *Index) swap(i, j int) {
 	ix.pts[i], ix.pts[j] = ix.pts[j], ix.pts[i]
 	ix.ecef[i], ix.ecef[j] = ix.ecef[j], ix.ecef[i]
 	ix.ids[i], ix.ids[j] = ix.ids[j], ix.ids[i]
+	ix.stretch[i], ix.stretch[j] = ix.stretch[j], ix.stretch[i]
 }
 
 // withMargin returns s with the safety margin added.
@@ -318,8 +323,15 @@ func (ix *Index) Nearest(lat, lon, maxDist float64) (int, float64) {
 	if !(math.Abs(lat) <= 90) || math.IsInf(lon, 0) || math.IsNaN(lon) {
 		return -1, math.NaN()
 	}
-	st := query{lat: lat, lon: lon, bestD2: 5, bestAt: -1, cap: math.Inf(1)}
-	st.q, st.p = siteVectors(lat, lon)
+	pt := Point{lat: lat, lon: lon, ok: true}
+	pt.q, pt.p = siteVectors(lat, lon)
+	return ix.nearest(&pt, maxDist)
+}
+
+// nearest is Nearest at a valid prepared point.
+func (ix *Index) nearest(pt *Point, maxDist float64) (int, float64) {
+	lat, lon := pt.lat, pt.lon
+	st := query{lat: lat, lon: lon, q: pt.q, p: pt.p, bestD2: 5, bestAt: -1, cap: math.Inf(1)}
 	if maxDist > 0 && !math.IsInf(maxDist, 1) {
 		st.cap = maxDist
 		// Sites with chord equal to the bound remain eligible: use the next float.
@@ -470,28 +482,8 @@ const stretchMax = 1.0017
 // (maxDist, +Inf): every site is farther. Invalid coordinates give
 // (NaN, NaN). Safe for concurrent use.
 func (ix *Index) NearestBounds(lat, lon, maxDist float64) (lo, hi float64) {
-	if !(math.Abs(lat) <= 90) || math.IsInf(lon, 0) || math.IsNaN(lon) {
-		return math.NaN(), math.NaN()
-	}
-	st := query{lat: lat, lon: lon, bestD2: 5, bestAt: -1, cap: math.Inf(1)}
-	st.q, st.p = siteVectors(lat, lon)
-	if maxDist > 0 && !math.IsInf(maxDist, 1) {
-		st.bestD2 = math.Nextafter(chordBound(withMargin(maxDist)), 5)
-	}
-	ix.nearestChord(0, len(ix.pts), &st)
-	if st.bestAt < 0 {
-		return maxDist, math.Inf(1)
-	}
-	sigma := 2 * math.Asin(math.Min(1, math.Sqrt(st.bestD2)/2))
-	// k falls with |latitude| and an arc between two points of one
-	// hemisphere is nowhere nearer the equator than its ends, so the
-	// stretch along the arc is at most k at the end nearer the equator.
-	k := stretchMax
-	if slat := ix.lat[ix.ids[st.bestAt]]; lat*slat >= 0 {
-		k = math.Min(k, stretchAt(math.Min(math.Abs(lat), math.Abs(slat)))*(1+1e-9))
-	}
-	lo = math.Max(0, sigma*rectBound*(1-1e-9)-marginAbs)
-	hi = withMargin(sigma*rectRadius*k*(1+1e-9)) + marginAbs
+	pt := NewPoint(lat, lon)
+	lo, hi, _ = ix.BoundsAt(&pt, maxDist, -1)
 	return lo, hi
 }
 

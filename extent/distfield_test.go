@@ -1,0 +1,125 @@
+package extent
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+	"sync"
+	"testing"
+
+	"areasweep/extent/geodesy"
+)
+
+// TestDistanceFieldExact: the runs distanceField gives for each cut are,
+// cell for cell, those of the exact distances (geodesy.Index.Nearest at
+// every cell centre, compared with each cut), with many close cuts so that
+// most cells lie near one, on a latitude-longitude grid (where rows share
+// prepared points and steps) and on a projected one (where each cell is
+// prepared and measured on its own), with sites scattered (point buffers)
+// and dense along a line (a region's boundary).
+func TestDistanceFieldExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 13))
+	scattered := func(n int) (lats, lons []float64) {
+		for range n {
+			lats = append(lats, 44+6*rng.Float64())
+			lons = append(lons, 4+10*rng.Float64())
+		}
+		return lats, lons
+	}
+	line := func() (lats, lons []float64) {
+		for i := range 400 {
+			f := float64(i) / 400
+			lats = append(lats, 45+4*f+0.3*math.Sin(20*f))
+			lons = append(lons, 6+5*f)
+		}
+		return lats, lons
+	}
+	cuts := func(step, n float64) []float64 {
+		var c []float64
+		for d := step; d <= n*step; d += step {
+			c = append(c, d)
+		}
+		return c
+	}
+	lonlat, err := NewGrid(150, 110, [6]float64{2, 0.09, 0, 52, 0, -0.09}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// ETRS89 LAEA Europe, 8 km cells over the same area.
+	laea, err := NewGrid(110, 100, [6]float64{3.8e6, 8000, 0, 2.9e6, 0, -8000}, "EPSG:3035")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, gc := range []struct {
+		name string
+		g    *Grid
+	}{{"lonlat", lonlat}, {"laea", laea}} {
+		for _, sc := range []struct {
+			name       string
+			lats, lons []float64
+			cuts       []float64
+		}{
+			{"scattered", nil, nil, cuts(12e3, 25)},
+			{"line", nil, nil, cuts(9e3, 30)},
+		} {
+			if sc.name == "scattered" {
+				sc.lats, sc.lons = scattered(60)
+			} else {
+				sc.lats, sc.lons = line()
+			}
+			t.Run(fmt.Sprintf("%s/%s", gc.name, sc.name), func(t *testing.T) {
+				checkDistanceField(t, gc.g, sc.lats, sc.lons, sc.cuts)
+			})
+		}
+	}
+}
+
+func checkDistanceField(t *testing.T, g *Grid, lats, lons, cuts []float64) {
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	maxD := cuts[len(cuts)-1]
+	got := make([][]rowRuns, g.Height)
+	var mu sync.Mutex
+	b := &builder{g: g}
+	b.distanceField(ix, newReach(lats, lons, maxD), maxD, cuts, func(row int, near []rowRuns) {
+		mu.Lock()
+		got[row] = near
+		mu.Unlock()
+	})
+	lo, la := make([]float64, g.Width), make([]float64, g.Width)
+	near, exact := 0, 0
+	for row := 0; row < g.Height; row++ {
+		g.RowLonLat(row, lo, la)
+		dist := make([]float64, g.Width)
+		for c := range dist {
+			dist[c] = math.Inf(1)
+			if !math.IsNaN(la[c]) {
+				_, dist[c] = ix.Nearest(la[c], lo[c], 0)
+			}
+			// Cells within a kilometre of a cut: the ones the field
+			// must measure exactly.
+			if j := sort.SearchFloat64s(cuts, dist[c]-1000); j < len(cuts) && cuts[j] <= dist[c]+1000 {
+				near++
+			}
+		}
+		for j, cut := range cuts {
+			var want rowRuns
+			for c := 0; c < g.Width; c++ {
+				if dist[c] <= cut {
+					want = append(want, int32(c), int32(c+1))
+				}
+			}
+			want = canonical(want)
+			if fmt.Sprint(got[row][j]) != fmt.Sprint(want) {
+				t.Fatalf("row %d, cut %g m: runs %v, exact distances give %v", row, cut, got[row][j], want)
+			}
+			exact++
+		}
+	}
+	if near < 100 {
+		t.Errorf("only %d cells within 1 km of a cut: the test does not probe the edges", near)
+	}
+}
