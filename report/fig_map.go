@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image"
 	"math"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -302,6 +303,81 @@ func (m *mapScene) panel(g mapGroup, cell draw.Canvas, legendH vg.Length) (float
 	return (p.X.Max - p.X.Min) * m.aspect * KmPerDegree / float64(da.Max.X-da.Min.X), nil
 }
 
+// Map panel sizes: a panel's map is never taller than mapMaxH, and the
+// figure takes more columns (up to mapMaxCols) rather than draw maps
+// shorter than mapMinH; what does not fit even then is left out and named
+// in the caption. Our own choices, for print at the journal sizes of
+// fig_style.go.
+const (
+	mapMaxH    = 100 * vg.Millimeter
+	mapMinH    = 30 * vg.Millimeter
+	mapMaxCols = 4
+	// mapPanelChrome is a panel's height besides its map and legend: title
+	// and axis labels.
+	mapPanelChrome = 42 // points
+)
+
+// mapLayout is the arrangement of the map panels: columns, panel width and
+// height, the height of the tallest outline legend, and how many panels
+// (the first ones) are drawn.
+type mapLayout struct {
+	cols         int
+	cellW, cellH vg.Length
+	legendH      vg.Length
+	shown        int
+}
+
+// layoutMapPanels arranges the panels of groups in a figure of width w
+// whose panels may take at most height avail, for maps of height/width
+// ratio hw: the fewest columns (from 2, or 1 for one panel) whose rows fit
+// with maps at least mapMinH tall, the maps as tall as the ratio, mapMaxH
+// and the room allow. When no column count fits every panel, the widest
+// arrangement shows as many rows as fit with maps mapMinH tall.
+func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float64) mapLayout {
+	try := func(cols int) (mapLayout, vg.Length) {
+		l := mapLayout{cols: cols, cellW: w / vg.Length(cols)}
+		dataW := l.cellW - vg.Points(44)
+		legendRowsMax := 1
+		for _, g := range groups {
+			var items []legendItem
+			for k, ei := range g.members {
+				items = append(items, legendItem{r.Extents[ei].ID, lineThumb{outlineStyle(k)}})
+			}
+			legendRowsMax = max(legendRowsMax, len(legendRows(items, dataW)))
+		}
+		l.legendH = vg.Length(legendRowsMax)*legendRowHeight + vg.Points(4)
+		rows := (len(groups) + cols - 1) / cols
+		chrome := vg.Points(mapPanelChrome) + l.legendH
+		dataH := min(dataW*vg.Length(hw), mapMaxH, avail/vg.Length(rows)-chrome)
+		l.cellH, l.shown = dataH+chrome, len(groups)
+		return l, dataH
+	}
+	first := min(2, len(groups))
+	var l mapLayout
+	for cols := first; cols <= max(first, mapMaxCols); cols++ {
+		var dataH vg.Length
+		if l, dataH = try(cols); dataH >= mapMinH || cols == 1 {
+			return l
+		}
+	}
+	// Even the widest arrangement has maps too short: keep them mapMinH
+	// tall and draw the rows that fit.
+	l.cellH = mapMinH + vg.Points(mapPanelChrome) + l.legendH
+	rows := max(1, int(avail/l.cellH))
+	l.shown = min(len(groups), rows*l.cols)
+	return l
+}
+
+// leftTitles names the panels left out of the map figure: the last left
+// groups of all (the first ones were drawn).
+func leftTitles(all []mapGroup, left int) string {
+	var ts []string
+	for _, g := range all[len(all)-left:] {
+		ts = append(ts, g.title)
+	}
+	return strings.Join(ts, "; ")
+}
+
 // mapFigure draws the extents as small multiples: one panel per nested
 // chain over the first model's suitability, with the points.
 func mapFigure(r *Results) (figure, bool) {
@@ -314,10 +390,8 @@ func mapFigure(r *Results) (figure, bool) {
 	if len(r.Models) > 0 {
 		model = r.Models[0].Name
 	}
-	cols := min(2, len(groups))
-	rows := (len(groups) + cols - 1) / cols
 	f := figure{Name: "extent_maps", Title: "Maps of the extents", W: twoColumns}
-	if cols == 1 {
+	if len(groups) == 1 {
 		f.W = oneColumn
 	}
 	west, south, east, north := pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
@@ -325,20 +399,6 @@ func mapFigure(r *Results) (figure, bool) {
 	if r.Grid.Geographic {
 		aspect = math.Cos((north + south) / 2 * math.Pi / 180)
 	}
-	// Each panel: title, map (aspect kept), its outline legend.
-	cellW := f.W / vg.Length(cols)
-	dataW := cellW - vg.Points(44)
-	legendRowsMax := 1
-	for _, g := range groups {
-		var items []legendItem
-		for k, ei := range g.members {
-			items = append(items, legendItem{r.Extents[ei].ID, lineThumb{outlineStyle(k)}})
-		}
-		legendRowsMax = max(legendRowsMax, len(legendRows(items, dataW)))
-	}
-	legendH := vg.Length(legendRowsMax)*legendRowHeight + vg.Points(4)
-	dataH := min(dataW*vg.Length((north-south)/((east-west)*aspect)), 100*vg.Millimeter)
-	cellH := dataH + vg.Points(42) + legendH
 	var shared []legendItem
 	for _, l := range mapPoints(r, model).layers {
 		shared = append(shared, legendItem{l.label, glyphThumb{gs: l.gs}})
@@ -349,11 +409,20 @@ func mapFigure(r *Results) (figure, bool) {
 		keyH = 30 * vg.Millimeter // colour bar, scale bar and north arrow
 	}
 	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, keyH) + vg.Points(4)
+	lay := layoutMapPanels(r, groups, f.W, maxHeight-bottomH-vg.Points(2), (north-south)/((east-west)*aspect))
+	cols, cellW, cellH, legendH := lay.cols, lay.cellW, lay.cellH, lay.legendH
+	all := groups
+	left := len(groups) - lay.shown
+	groups = groups[:lay.shown]
+	rows := (len(groups) + cols - 1) / cols
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
 	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together), each outline in its own colour and dash. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
 		"Outlines follow the coarse copy's cells, so they are drawn to within one of its cells.", model, model)
+	if left > 0 {
+		f.Caption += fmt.Sprintf(" %d more panels (%s) do not fit on the page; extents.gpkg holds every extent's outline.", left, leftTitles(all, left))
+	}
 	if r.Grid.Geographic {
 		f.Caption += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
 	}
