@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sync"
 )
 
 // Z975 is the 0.975 quantile of the standard normal distribution
@@ -106,6 +107,71 @@ type Evaluator struct {
 	// the sum of squares, summed in window order as Spearman does.
 	midDev []float64
 	midSS  float64
+	// own is the memo of ownResamples: the scores on each resample of
+	// one Draws with all of the evaluator's presences.
+	own ownMemo
+}
+
+// useOwnMemo is false only in the test that checks the memo against
+// evaluating every resample again.
+var useOwnMemo = true
+
+// ownMemo holds an evaluator's scores on the B resamples of one Draws
+// restricted to its own presences, flattened per resample: nE partial ROC
+// ratios (ok[r*nE+i]), nT omission rates, the Boyce index (boyceOK[r]) and
+// the number of presences drawn (n[r]). 8(nE+nT+1)+nE+9 bytes per
+// resample.
+type ownMemo struct {
+	mu          sync.Mutex
+	d           Draws
+	done        bool
+	ratio, om   []float64
+	boyce       []float64
+	ok, boyceOK []bool
+	n           []int
+}
+
+// ownResamples returns the evaluator's memo for d, computing it on the
+// first call: every comparison in which all of the evaluator's presences
+// are common evaluates exactly these resamples (the counts of its
+// presences in each resample of d, whatever the other side is), so the
+// memo gives bit for bit what evaluating them again would. Safe for
+// concurrent use; a call with other Draws recomputes it.
+func (e *Evaluator) ownResamples(d Draws) *ownMemo {
+	m := &e.own
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.done && m.d == d {
+		return m
+	}
+	nE, nT := len(e.es), len(e.below)
+	m.d, m.done = d, true
+	m.ratio, m.ok = make([]float64, d.B*nE), make([]bool, d.B*nE)
+	m.om = make([]float64, d.B*nT)
+	m.boyce, m.boyceOK, m.n = make([]float64, d.B), make([]bool, d.B), make([]int, d.B)
+	global := make([]int32, d.N)
+	c := make([]int32, len(e.ids))
+	var v Values
+	var sc evalScratch
+	for r := 0; r < d.B; r++ {
+		d.fill(r, global)
+		for k, id := range e.ids {
+			c[k] = global[id]
+		}
+		e.evalInto(c, &v, &sc)
+		copy(m.ratio[r*nE:], v.Ratio)
+		copy(m.ok[r*nE:], v.RatioOK)
+		copy(m.om[r*nT:], v.Omission)
+		m.boyce[r], m.boyceOK[r], m.n[r] = v.Boyce, v.BoyceOK, v.N
+	}
+	return m
+}
+
+// load sets v to resample r of the memo (its slices point into the memo).
+func (m *ownMemo) load(r, nE, nT int, v *Values) {
+	v.Ratio, v.RatioOK = m.ratio[r*nE:(r+1)*nE], m.ok[r*nE:(r+1)*nE]
+	v.Omission = m.om[r*nT : (r+1)*nT]
+	v.Boyce, v.BoyceOK, v.N = m.boyce[r], m.boyceOK[r], m.n[r]
 }
 
 // evalScratch is the working memory of one eval call, reused across
@@ -525,16 +591,36 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 	global := make([]int32, d.N)
 	if len(pa) > 0 {
+		// A side whose presences are all common scores the resamples of its
+		// own memo (the same numbers, computed once per evaluator and
+		// shared by all its comparisons).
+		var ma, mb *ownMemo
+		if len(pa) == len(a.ids) && useOwnMemo {
+			ma = a.ownResamples(d)
+		}
+		if len(pb) == len(b.ids) && useOwnMemo {
+			mb = b.ownResamples(d)
+		}
 		var ra, rb Values
 		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
-			d.fill(r, global)
-			for k := range pa {
-				c := global[a.ids[pa[k]]]
-				ca[pa[k]], cb[pb[k]] = c, c
+			if ma == nil || mb == nil {
+				d.fill(r, global)
+				for k := range pa {
+					c := global[a.ids[pa[k]]]
+					ca[pa[k]], cb[pb[k]] = c, c
+				}
 			}
-			a.evalInto(ca, &ra, &sa)
-			b.evalInto(cb, &rb, &sb)
+			if ma != nil {
+				ma.load(r, nE, nT, &ra)
+			} else {
+				a.evalInto(ca, &ra, &sa)
+			}
+			if mb != nil {
+				mb.load(r, nE, nT, &rb)
+			} else {
+				b.evalInto(cb, &rb, &sb)
+			}
 			for i := 0; i < nE; i++ {
 				if ra.RatioOK[i] && rb.RatioOK[i] {
 					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"reflect"
 	"slices"
 	"testing"
 )
@@ -285,5 +286,78 @@ func TestEvaluatorMatchesScore(t *testing.T) {
 		if f.BoyceOK != sc.Boyce.Defined || f.Boyce != sc.Boyce.Index {
 			t.Errorf("case %d: Boyce %v/%v, Score %v/%v", it, f.Boyce, f.BoyceOK, sc.Boyce.Index, sc.Boyce.Defined)
 		}
+	}
+}
+
+// TestCompareMemoMatchesDirect: comparisons that take a side's resampled
+// scores from its memo (every presence of that side common: nested
+// extents, models on one extent) give exactly, bit for bit, what
+// evaluating every resample again gives, for nested, equal and partly
+// overlapping sets of test presences and for two models, in any order of
+// calls.
+func TestCompareMemoMatchesDirect(t *testing.T) {
+	r := rand.New(rand.NewPCG(41, 42))
+	c := randomCase(r, 300, 80, 30, 200)
+	s := Settings{E: []float64{0.05, 0.2}, BoyceSteps: 20}
+	_, acc := build(t, c, nil, 128)
+	ths := []float64{c.test[0], c.test[1]}
+	sets := []func(int) bool{
+		func(int) bool { return true },                 // all
+		func(i int) bool { return i%3 != 0 },           // nested in all
+		func(i int) bool { return i%2 == 0 || i < 10 }, // overlaps the second
+	}
+	// mk returns the evaluator of model m (0: the test values; 1: another
+	// model, the values of other presences) on test set k.
+	mk := func(m, k int) *Evaluator {
+		var test []float64
+		var ids []int
+		for i, v := range c.test {
+			if sets[k](i) {
+				if m == 1 {
+					v = c.test[(i+5)%len(c.test)]
+				}
+				test, ids = append(test, v), append(ids, i)
+			}
+		}
+		e, err := NewEvaluator(acc, test, ids, ths, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return e
+	}
+	d := Draws{N: len(c.test), B: 60, Seed: 9}
+	type side struct{ m, k int }
+	pairs := [][2]side{{{0, 1}, {0, 0}}, {{0, 0}, {0, 1}}, {{0, 0}, {1, 0}}, {{0, 1}, {0, 2}}, {{1, 2}, {0, 0}}, {{0, 1}, {1, 1}}, {{1, 0}, {1, 0}}}
+	want := make([]Comparison, len(pairs))
+	useOwnMemo = false
+	for i, p := range pairs {
+		var err error
+		if want[i], err = Compare(mk(p[0].m, p[0].k), mk(p[1].m, p[1].k), d); err != nil {
+			t.Fatal(err)
+		}
+	}
+	useOwnMemo = true
+	shared := map[side]*Evaluator{}
+	ev := func(sd side) *Evaluator {
+		if shared[sd] == nil {
+			shared[sd] = mk(sd.m, sd.k)
+		}
+		return shared[sd]
+	}
+	nonzero := false
+	for rep := 0; rep < 2; rep++ { // the second round reads every memo
+		for i := len(pairs) - 1; i >= 0; i-- {
+			got, err := Compare(ev(pairs[i][0]), ev(pairs[i][1]), d)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !reflect.DeepEqual(got, want[i]) {
+				t.Errorf("pair %d, round %d: with the memo\n%+v\nwithout\n%+v", i, rep, got, want[i])
+			}
+			nonzero = nonzero || got.Boyce.SD != 0 || got.PartialROC[0].SD != 0 || got.Omission[0].SD != 0
+		}
+	}
+	if !nonzero {
+		t.Error("no comparison had resampled differences: the test compares nothing")
 	}
 }

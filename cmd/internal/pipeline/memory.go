@@ -15,11 +15,13 @@ import (
 
 // memoryUse is the estimate of the memory a run needs, by part.
 type memoryUse struct {
-	Runs, Valid, Accumulators, Blocks, Points int64
+	Runs, Valid, Accumulators, Blocks, Points, Resamples int64
 }
 
 // Total returns the sum of the parts in bytes.
-func (m memoryUse) Total() int64 { return m.Runs + m.Valid + m.Accumulators + m.Blocks + m.Points }
+func (m memoryUse) Total() int64 {
+	return m.Runs + m.Valid + m.Accumulators + m.Blocks + m.Points + m.Resamples
+}
 
 // blockCache is GDAL's block cache as the run sets it when the user does
 // not (see the README's Memory note).
@@ -38,6 +40,9 @@ const blockCache = 64 << 20
 //	blocks        workers x one block buffer of blockCells float64 values,
 //	              plus GDAL's 64 MB block cache
 //	points        about 400 bytes per occurrence record (records, lists, results)
+//	resamples     the paired analysis's memo of each model x extent's scores
+//	              on every resample (metrics: 8 (E values + thresholds + 1)
+//	              + E values + 9 bytes per resample), added by resampleMemo
 //
 // layoutValues is the number of presence values plus fixed thresholds.
 func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
@@ -49,6 +54,16 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 		Blocks:       int64(workers)*int64(blockCells)*8 + blockCache,
 		Points:       400 * int64(points),
 	}
+}
+
+// resampleMemo returns the bytes of the paired analysis's memo of
+// resampled scores (see estimateMemory) for extents extents: every model,
+// null and the distance-only null on every extent, Iterations resamples
+// each, with the two percentile thresholds and the fixed ones.
+func (o *Options) resampleMemo(extents int) int64 {
+	models := int64(len(o.Models) + len(o.Nulls) + 1)
+	perResample := int64(8*(len(o.E)+2+len(o.Thresholds)+1) + len(o.E) + 9)
+	return models * int64(extents) * int64(max(o.Iterations, 0)) * perResample
 }
 
 // maxExtents is an upper bound on the members the settings can make,
@@ -111,14 +126,15 @@ func (s *Study) checkMemory() error {
 	}
 	layout := len(s.points) + len(o.Thresholds)
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, 512*512, len(s.points))
+	est.Resamples = o.resampleMemo(o.maxExtents())
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
 	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the map of cells with data (1 bit per cell) and the extents' row runs, "+
-		"and %d worker(s) x %d extents need %s for the scores; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
-		"or use fewer --workers or extents",
-		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators)))
+		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
+		"or use fewer --workers, extents or --iterations",
+		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples)))
 }
 
 func gib(b int64) string {
