@@ -150,12 +150,30 @@ func (r *Raster) Close() error { return r.ds.Close() }
 func (r *Raster) valid(v float64) bool { return !math.IsNaN(v) }
 
 // Sample returns the raster's value at each cell index (row*width+col) and
-// whether it is valid. Cells < 0 are reported invalid.
+// whether it is valid. Cells < 0 are reported invalid. The cells are read
+// block by block (in the file's block order), so that each block that
+// holds points is decoded once, whatever the order of the cells and
+// however many blocks GDAL's cache holds.
 func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) {
 	vals := make([]float64, len(cells))
 	ok := make([]bool, len(cells))
 	buf := make([]float64, 1)
-	for i, c := range cells {
+	bw, bh := max(r.blockW, 1), max(r.blockH, 1)
+	blockOf := func(c int) (int, int) { return (c / g.Width) / bh, (c % g.Width) / bw }
+	order := make([]int, len(cells))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int {
+		ra, ca := blockOf(cells[a])
+		rb, cb := blockOf(cells[b])
+		if ra != rb {
+			return ra - rb
+		}
+		return ca - cb
+	})
+	for _, i := range order {
+		c := cells[i]
 		if c < 0 {
 			continue
 		}
