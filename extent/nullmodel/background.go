@@ -156,13 +156,30 @@ func (r *Row) Set(dist []float64, weights []int64) {
 		}
 		w := weights[i]
 		r.bin[i], r.w[i] = int32(distBin(d)), w
-		ph, pl := bits.Mul64(uint64(math.Round(d*1000)), uint64(w))
+		ph, pl := bits.Mul64(roundMM(d), uint64(w))
 		area += w
 		var carry uint64
 		sumLo, carry = bits.Add64(sumLo, pl, 0)
 		sumHi, _ = bits.Add64(sumHi, ph, carry)
 	}
 	r.pa[n], r.ph[n], r.pl[n] = area, sumHi, sumLo
+}
+
+// roundMM returns math.Round(d*1000) as an integer for a distance d >= 0
+// (m) in whole millimetres, without math.Round's bit manipulation: with x
+// = d*1000 below 2^52, t = trunc(x) is exact and so is x - t (both have no
+// bits below x's last one), so rounding half away from zero is t + 1 when
+// x - t >= 1/2; at or above 2^52, x is an integer already.
+func roundMM(d float64) uint64 {
+	x := d * 1000
+	if !(x < 1<<52) {
+		return uint64(math.Round(x))
+	}
+	t := uint64(x)
+	if x-float64(t) >= 0.5 {
+		t++
+	}
+	return t
 }
 
 // Tally is a locked partial sum of a Background, for adding rows.

@@ -210,3 +210,21 @@ func TestTallyAddAll(t *testing.T) {
 		t.Error("AddAll encodes differently from Add extent by extent")
 	}
 }
+
+// TestRoundMM checks roundMM against math.Round(d*1000) on halves,
+// neighbours of halves, large and random distances.
+func TestRoundMM(t *testing.T) {
+	ds := []float64{0, 1e-4, 5e-4, 0.0005, 0.0015, 2.5e-3, 1, 1.0005, 1234.5675, 2e7, 4.5e12, 1 << 52 / 1000.0, 1e300}
+	for _, d := range []float64{0.0005, 0.0015, 12.3455, 1e9 + 0.0005} {
+		ds = append(ds, math.Nextafter(d, 0), math.Nextafter(d, 1e308))
+	}
+	r := rand.New(rand.NewPCG(1, 2))
+	for range 100000 {
+		ds = append(ds, r.Float64()*2e7, float64(r.IntN(1<<30))/1000+0.0005)
+	}
+	for _, d := range ds {
+		if got, want := roundMM(d), uint64(math.Round(d*1000)); got != want {
+			t.Fatalf("roundMM(%v) = %d, want %d", d, got, want)
+		}
+	}
+}

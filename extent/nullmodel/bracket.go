@@ -202,7 +202,11 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // 6313 km. The series of asin has positive coefficients, those from x^5 on
 // at most 3/40, and u <= 0.225, so its tail is below 0.097 u^2. Both ends
 // grow with D, so the cell's bracket is that of the shortest chord, widened
-// by the margin below; no upper bound (+Inf) beyond 6000 km.
+// by the margin below; no upper bound (+Inf) beyond 6000 km. Every cell's
+// chord to a candidate is at least the centre's shortest chord minus rho:
+// where the bracket of that chord is already wider than chordSkip floor
+// bins, few cells would be placed by their chords, and the super-tile's
+// cells go to the anchors at once (with the chord bracket [0, +Inf)).
 //
 // The cells that bracket leaves undecided (too wide, or across a bin)
 // use anchors, and keep the intersection of both brackets (each holds the
@@ -247,8 +251,10 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // measured one by more than twice the largest t (it cannot be nearest
 // anywhere around the anchor); the lower bounds at a patch's anchor are
 // the exact distances at the super-tile's centre minus pathBound, and
-// the candidates are the super-tile's. A cell whose patch bracket still fails is
-// computed exactly: the smallest geodesic to the patch's measured sites
+// the candidates are the super-tile's. A cell whose bracket from the
+// super-tile's centre crosses a bin edge while narrower than exactWidth
+// floor bins, and a cell whose patch bracket still fails, is computed
+// exactly: the smallest geodesic to the anchor's measured sites
 // whose brackets reach the smallest upper end (the others are farther),
 // which is Index.Nearest's value bit for bit.
 func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
@@ -312,7 +318,7 @@ type bracketer struct {
 	cands    []int
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
-	pending  []bool // per block cell: left to the patches
+	pending  []bool    // per block cell: left to the patches
 	clo, chi []float64 // per block cell: the chord bracket
 	// ECEF of the block's cells: (rowA[y] colC[x], rowA[y] colS[x], rowZ[y])
 	rowA, rowZ []float64
@@ -419,7 +425,16 @@ func (b *bracketer) super(sr, scol int) {
 			if !ok || !b.pending[i] {
 				continue
 			}
-			if b.cell(i, big, (r-cr+SuperTile/2)*SuperTile+c-cc+SuperTile/2) {
+			j := (r-cr+SuperTile/2)*SuperTile + c - cc + SuperTile/2
+			ok, w := b.cell(i, big, j)
+			if ok {
+				b.pending[i] = false
+				continue
+			}
+			if w <= exactWidth*b.binW {
+				// A narrow bracket across a bin edge: a patch's anchor
+				// would cost about the geodesics of measuring the cell.
+				b.exact(i, b.measured, big, j, ll.lat(r), ll.lon(c))
 				b.pending[i] = false
 				continue
 			}
@@ -473,6 +488,24 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 		}
 		b.csites = keep
 	}
+	// Every chord from a cell is at least dmin = cc_0 - rho (minus 1 m
+	// for rounding), and the width of chordBracket grows with the chord:
+	// when it is at least chordSkip floor bins there, few cells' chord
+	// brackets would fall inside one bin (sameBins), so the cells go to
+	// the anchors at once with no chord bracket (0, +Inf).
+	if dmin := b.csites[0].cc - rho - 1; dmin > 0 {
+		if lo, hi := chordBracket(dmin); hi-lo >= chordSkip*b.binW {
+			for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
+				for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
+					if i, ok := b.needed(c, r); ok {
+						b.clo[i], b.chi[i] = 0, math.Inf(1)
+						b.pending[i] = true
+					}
+				}
+			}
+			return true
+		}
+	}
 	pend := false
 	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
 		y := r - b.y0
@@ -512,6 +545,17 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 	}
 	return pend
 }
+
+// exactWidth is the width, in floor bins, of the widest bracket from a
+// super-tile's centre that is not narrowed at a patch's anchor when it
+// crosses a bin edge: the cell is measured at once.
+const exactWidth = 0.125
+
+// chordSkip is the width, in floor bins, of the narrowest chord bracket
+// at which a super-tile's chords are not tried (see chords): our choice,
+// measured on BenchmarkNullVsRaster's study, where a bracket from the
+// centre's anchor costs less than a chord bracket that fails.
+const chordSkip = 0.25
 
 // dist3 returns the Euclidean distance between p and q.
 func dist3(p, q [3]float64) float64 {
@@ -565,7 +609,7 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 // cell brackets block cell i from the measured sites, at stencil entry j
 // of st, and reports whether the bracket is narrow enough and inside one
 // bin (then lo[i] and hi[i] are set).
-func (b *bracketer) cell(i int, st *stencil, j int) bool {
+func (b *bracketer) cell(i int, st *stencil, j int) (bool, float64) {
 	t, su, cu := st.t[j], st.sa[j], st.ca[j]
 	lo, hi := math.Inf(1), math.Inf(1)
 	for q := range b.measured {
@@ -587,9 +631,9 @@ func (b *bracketer) cell(i int, st *stencil, j int) bool {
 	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
 	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
 		b.lo[i], b.hi[i] = lo, hi
-		return true
+		return true, hi - lo
 	}
-	return false
+	return false, hi - lo
 }
 
 // exactRange computes the cells of the block in the global rectangle of
@@ -682,30 +726,36 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 				continue
 			}
 			j := (dr+patchK)*patchP + dc + patchK
-			if b.cell(i, st, j) {
+			if ok, _ := b.cell(i, st, j); ok {
 				continue
 			}
-			// Measure the cell against the sites whose bracket reaches the
-			// smallest upper end: the others are farther.
-			t, su, cu := st.t[j], st.sa[j], st.ca[j]
-			minHi := math.Inf(1)
-			for q := range b.measured {
-				if _, h := taylorBracket(&b.measured[q], t, su, cu); h < minHi {
-					minHi = h
-				}
-			}
-			lat, lon := ll.lat(ra+dr), ll.lon(ca+dc)
-			d := math.Inf(1)
-			for q := range b.measured {
-				m := &b.measured[q]
-				if l, _ := taylorBracket(m, t, su, cu); l > minHi {
-					continue
-				}
-				d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))
-			}
-			b.lo[i], b.hi[i] = d, d
+			b.exact(i, b.measured, st, j, ll.lat(ra+dr), ll.lon(ca+dc))
 		}
 	}
+}
+
+// exact computes block cell i, at (lat, lon) and at entry j of the
+// stencil st of the anchor where sites were measured (which hold its
+// nearest site), exactly: the smallest geodesic to the sites whose bracket
+// reaches the smallest upper end (the others are farther), Index.Nearest's
+// value bit for bit.
+func (b *bracketer) exact(i int, sites []anchorSite, st *stencil, j int, lat, lon float64) {
+	t, su, cu := st.t[j], st.sa[j], st.ca[j]
+	minHi := math.Inf(1)
+	for q := range sites {
+		if _, h := taylorBracket(&sites[q], t, su, cu); h < minHi {
+			minHi = h
+		}
+	}
+	d := math.Inf(1)
+	for q := range sites {
+		m := &sites[q]
+		if l, _ := taylorBracket(m, t, su, cu); l > minHi {
+			continue
+		}
+		d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))
+	}
+	b.lo[i], b.hi[i] = d, d
 }
 
 // sortSites sorts measured sites by distance at the anchor (insertion

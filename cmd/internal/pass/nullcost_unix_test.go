@@ -76,3 +76,29 @@ func BenchmarkNullVsRaster(b *testing.B) {
 		g.Close()
 	}
 }
+
+// BenchmarkNullBounds isolates the bounds of the distance-only null
+// (nullmodel.Field.Bounds, the part of its pass that BenchmarkNullVsRaster
+// cannot separate from the scoring and the tally): every block of
+// VirtualBlock x VirtualBlock cells of the 27-million-cell study, every cell
+// needed, on one goroutine, reporting the process CPU time per cell.
+func BenchmarkNullBounds(b *testing.B) {
+	g, v, layout, _ := nullBenchStudy(b, 27e6)
+	bf := v.field.(BoundedField)
+	fb := newFloorBinner(layout)
+	lo := make([]float64, VirtualBlock*VirtualBlock)
+	hi := make([]float64, VirtualBlock*VirtualBlock)
+	var cpu int64
+	for b.Loop() {
+		t0 := cpuNow(b)
+		for y0 := 0; y0 < g.Height; y0 += VirtualBlock {
+			for x0 := 0; x0 < g.Width; x0 += VirtualBlock {
+				w, h := min(VirtualBlock, g.Width-x0), min(VirtualBlock, g.Height-y0)
+				bf.Bounds(x0, y0, w, h, nil, fb, lo, hi)
+			}
+		}
+		cpu += cpuNow(b) - t0
+	}
+	b.ReportMetric(float64(cpu)/float64(b.N)/float64(g.Width*g.Height), "cpu-ns/cell")
+	g.Close()
+}

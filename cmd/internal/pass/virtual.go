@@ -168,20 +168,17 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	// computes depends on the block and on the family around the cell
 	// (a shard's blocks are cut at its rows, and its family is clipped only
 	// in its rows), the bounds on the cell alone.
-	shown := s.shown[:w*h]
+	// The block's values are the same midpoints but at the cells
+	// exactExtremes computes, which it writes into buf.
+	shown, buf := s.shown[:w*h], buf[:w*h]
 	for i := range shown {
-		shown[i] = lo[i]
-		if lo[i] != hi[i] {
-			shown[i] = (lo[i] + hi[i]) / 2
+		m := lo[i]
+		if m != hi[i] {
+			m = (m + hi[i]) / 2
 		}
+		shown[i], buf[i] = m, m
 	}
-	s.exactExtremes(x0, y0, w, h, lo, hi)
-	for i := range buf[:w*h] {
-		buf[i] = lo[i]
-		if lo[i] != hi[i] {
-			buf[i] = (lo[i] + hi[i]) / 2
-		}
-	}
+	s.exactExtremes(x0, y0, w, h, lo, hi, buf)
 	return nil
 }
 
@@ -216,14 +213,14 @@ func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 	}
 }
 
-// exactExtremes computes exactly (lo = hi = Fill's value) every cell of
+// exactExtremes computes exactly (lo = hi = buf = Fill's value) every cell of
 // the block that may hold the smallest or the largest value of a member
 // it is added to (see Virtual). A first walk finds each member's smallest
 // upper and largest lower bound in the block and, per row, its smallest
 // lower and largest upper bound (reusing the previous member's figures
 // when its runs in the row are the same: minima and maxima of the same
 // cells); the second walk visits only the rows that can hold such a cell.
-func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
+func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 	nm := len(s.minHi)
 	for k := range s.minHi {
 		s.minHi[k], s.maxLo[k] = math.Inf(1), math.Inf(-1)
@@ -284,7 +281,7 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi []float64) {
 					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
 						if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
 							s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
-							lo[i], hi[i] = s.one[0], s.one[0]
+							lo[i], hi[i], buf[i] = s.one[0], s.one[0], s.one[0]
 						}
 					}
 				}
