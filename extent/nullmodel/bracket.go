@@ -48,6 +48,11 @@ const (
 	SuperTile = superP * patchP
 )
 
+// The anchor rows of stencil assume an odd super-tile side: an even one
+// would make the bounds wrong without any error, so it does not compile
+// (array length -1).
+var _ [SuperTile%2 - 1]struct{}
+
 // Hessian comparison radii of the WGS84 ellipsoid: the Gaussian curvature
 // K = 1/(M N) runs from b^2/a^4 (poles) to 1/b^2 (equator), so
 // sqrt(Kmin) = b/a^2 and sqrt(Kmax) = 1/b.
