@@ -296,6 +296,25 @@ func (l *Layout) LocateRow(vals []float64, bins []int32) (n int, lo, hi float64)
 // Values returns a copy of the sorted distinct layout values d_0..d_{m-1}.
 func (l *Layout) Values() []float64 { return slices.Clone(l.d) }
 
+// Cell returns the values that share v's exact bin: {d_j} (closed) when
+// Locate gives 2j+1 (v is d_j), the open interval (d_{j-1}, d_j) when it
+// gives 2j, with no end (an infinity) at j = 0 or j = m.
+func (l *Layout) Cell(v float64) (lo, hi float64, closed bool) {
+	bin := l.Locate(v)
+	j := bin >> 1
+	if bin&1 == 1 {
+		return l.d[j], l.d[j], true
+	}
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if j > 0 {
+		lo = l.d[j-1]
+	}
+	if j < len(l.d) {
+		hi = l.d[j]
+	}
+	return lo, hi, false
+}
+
 // Bins returns the number of exact bins, 2m+1.
 func (l *Layout) Bins() int { return 2*len(l.d) + 1 }
 

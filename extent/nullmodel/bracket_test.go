@@ -16,30 +16,15 @@ import (
 // the interval of values sharing both.
 type floorBins struct {
 	l *metrics.Layout
-	d []float64
 }
 
-func newFloorBins(l *metrics.Layout) floorBins { return floorBins{l, l.Values()} }
+func newFloorBins(l *metrics.Layout) floorBins { return floorBins{l} }
 
 func (b floorBins) Locate(v float64) (bin, hist int) { return b.l.Locate(v), int(b.l.FloorBin(v)) }
 
 // Cell returns the exact bin: the value d_j, or the open interval between
 // two values.
-func (b floorBins) Cell(v float64) (lo, hi float64, closed bool) {
-	bin := b.l.Locate(v)
-	j := bin >> 1
-	if bin&1 == 1 {
-		return b.d[j], b.d[j], true
-	}
-	lo, hi = math.Inf(-1), math.Inf(1)
-	if j > 0 {
-		lo = b.d[j-1]
-	}
-	if j < len(b.d) {
-		hi = b.d[j]
-	}
-	return lo, hi, false
-}
+func (b floorBins) Cell(v float64) (lo, hi float64, closed bool) { return b.l.Cell(v) }
 
 func (b floorBins) FloorScale() float64 {
 	e, _ := b.l.HistFloor()

@@ -44,34 +44,18 @@ type Binner = interface {
 // accumulator at every level it may reach.
 type floorBinner struct {
 	l *metrics.Layout
-	d []float64 // the layout's values, d_0 < ... < d_{m-1}
-	s float64   // 2^-e for the floor exponent e
+	s float64 // 2^-e for the floor exponent e
 }
 
 // newFloorBinner returns the Binner of a floored layout.
 func newFloorBinner(l *metrics.Layout) floorBinner {
 	e, _ := l.HistFloor()
-	return floorBinner{l: l, d: l.Values(), s: math.Ldexp(1, -e)}
+	return floorBinner{l: l, s: math.Ldexp(1, -e)}
 }
 
 // Cell returns the values that share v's exact bin (see
-// nullmodel.Binner): {d_j} when Locate gives 2j+1 (v is d_j), the open
-// interval (d_{j-1}, d_j) when it gives 2j (no end at j = 0 or m).
-func (b floorBinner) Cell(v float64) (lo, hi float64, closed bool) {
-	bin := b.l.Locate(v)
-	j := bin >> 1
-	if bin&1 == 1 {
-		return b.d[j], b.d[j], true
-	}
-	lo, hi = math.Inf(-1), math.Inf(1)
-	if j > 0 {
-		lo = b.d[j-1]
-	}
-	if j < len(b.d) {
-		hi = b.d[j]
-	}
-	return lo, hi, false
-}
+// nullmodel.Binner and metrics.Layout.Cell).
+func (b floorBinner) Cell(v float64) (lo, hi float64, closed bool) { return b.l.Cell(v) }
 
 // FloorScale returns 2^-e for the layout's floor exponent e.
 func (b floorBinner) FloorScale() float64 { return b.s }
