@@ -10,6 +10,8 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+
+	"areasweep/extent/benchfamily"
 )
 
 // BenchmarkBuild measures building a family of 10 members (base, four
@@ -135,20 +137,7 @@ func BenchmarkBuildStudy(b *testing.B) {
 	defer g.Close()
 	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
 	for _, n := range []int{13, 20, 60} {
-		// As cmd/sweepbench's familyFlags.
-		var region, points []float64
-		for i := 0; i < n-3; i++ {
-			if i%2 == 0 {
-				k := float64(i/2 + 1)
-				d := 20 * math.Ceil(k/2)
-				if int(k)%2 == 0 {
-					d = -d
-				}
-				region = append(region, d)
-			} else {
-				points = append(points, 25*float64(i/2+1))
-			}
-		}
+		region, points := benchfamily.Buffers(n)
 		spec := Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
 		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
 			b.ReportAllocs()

@@ -10,6 +10,7 @@ import (
 	"runtime"
 	"sync"
 
+	"areasweep/extent/benchfamily"
 	"areasweep/extent/vocab"
 
 	"github.com/airbusgeo/godal"
@@ -206,21 +207,7 @@ func writeRegion(path string) error {
 // base, whole_raster and hull always, then alternating region buffers and
 // point buffers.
 func familyFlags(n int) []string {
-	extra := max(0, n-3)
-	var region, points []float64
-	for i := 0; i < extra; i++ {
-		if i%2 == 0 {
-			k := float64(i/2 + 1)
-			// grow and shrink alternately, 20 km steps
-			d := 20 * math.Ceil(k/2)
-			if int(k)%2 == 0 {
-				d = -d
-			}
-			region = append(region, d)
-		} else {
-			points = append(points, 25*float64(i/2+1))
-		}
-	}
+	region, points := benchfamily.Buffers(n)
 	flags := []string{"--hull-buffers", "0"}
 	if len(region) > 0 {
 		flags = append(flags, "--region-buffers="+joinFloats(region))
