@@ -89,11 +89,9 @@ func BenchmarkPass(b *testing.B) {
 	}
 }
 
-// BenchmarkPassSmooth is BenchmarkPass on a spatially smooth 256x256 tile
-// (neighbouring cells have close values, as in real suitability rasters),
-// read row by row, with 1000 presence values.
-func BenchmarkPassSmooth(b *testing.B) {
-	l, _ := benchLayout(b, 1000)
+// smoothTile returns a spatially smooth 256x256 tile of values in [0, 1]
+// (neighbouring cells have close values, as in real suitability rasters).
+func smoothTile() []float64 {
 	cells := make([]float64, benchCells)
 	r := rand.New(rand.NewPCG(3, 3))
 	for y := 0; y < 256; y++ {
@@ -102,6 +100,15 @@ func BenchmarkPassSmooth(b *testing.B) {
 			cells[y*256+x] = math.Max(0, math.Min(1, v))
 		}
 	}
+	return cells
+}
+
+// BenchmarkPassSmooth is BenchmarkPass on a spatially smooth 256x256 tile
+// (neighbouring cells have close values, as in real suitability rasters),
+// read row by row, with 1000 presence values.
+func BenchmarkPassSmooth(b *testing.B) {
+	l, _ := benchLayout(b, 1000)
+	cells := smoothTile()
 	for _, extents := range []int{1, 8, 64} {
 		b.Run(fmt.Sprintf("presences=1000/extents=%d", extents), func(b *testing.B) {
 			runPass(b, l, cells, extents)
@@ -206,14 +213,7 @@ func BenchmarkCompare(b *testing.B) {
 // tile (as BenchmarkPassSmooth), with 1000 layout values: ns per cell.
 func BenchmarkLocateRow(b *testing.B) {
 	l, _ := benchLayout(b, 1000)
-	cells := make([]float64, benchCells)
-	r := rand.New(rand.NewPCG(3, 3))
-	for y := 0; y < 256; y++ {
-		for x := 0; x < 256; x++ {
-			v := 0.5 + 0.25*math.Sin(float64(x)/19) + 0.2*math.Cos(float64(y)/23) + 0.02*r.Float64()
-			cells[y*256+x] = math.Max(0, math.Min(1, v))
-		}
-	}
+	cells := smoothTile()
 	bins := make([]int32, 256)
 	b.ReportAllocs()
 	b.ResetTimer()
