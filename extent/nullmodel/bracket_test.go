@@ -91,24 +91,13 @@ func TestBracketContainsDistance(t *testing.T) {
 			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}} {
 				for _, masked := range []bool{false, true} {
 					lo, hi := make([]float64, tc.w*tc.h), make([]float64, tc.w*tc.h)
-					blo, bhi, nd := make([]float64, bs[0]*bs[1]), make([]float64, bs[0]*bs[1]), make([]uint64, bs[0]*bs[1])
-					for y0 := 0; y0 < tc.h; y0 += bs[1] {
-						for x0 := 0; x0 < tc.w; x0 += bs[0] {
-							w, h := min(bs[0], tc.w-x0), min(bs[1], tc.h-y0)
-							var n []uint64
-							if masked {
-								n = nd[:w*h]
-								for y := range h {
-									copy(n[y*w:(y+1)*w], need[(y0+y)*tc.w+x0:])
-								}
-							}
-							f.Bracket(x0, y0, w, h, n, layout, blo, bhi)
-							for y := range h {
-								copy(lo[(y0+y)*tc.w+x0:], blo[y*w:(y+1)*w])
-								copy(hi[(y0+y)*tc.w+x0:], bhi[y*w:(y+1)*w])
-							}
-						}
+					var mask []uint64
+					if masked {
+						mask = need
 					}
+					walkTiles(tc.w, tc.h, bs[0], bs[1], mask, [][]float64{lo, hi}, func(x0, y0, w, h int, n []uint64, bufs [][]float64) {
+						f.Bracket(x0, y0, w, h, n, layout, bufs[0], bufs[1])
+					})
 					exact, bad := 0, 0
 					for i, d := range want {
 						if masked && need[i] == 0 {

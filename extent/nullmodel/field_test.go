@@ -74,24 +74,13 @@ func TestDistancesMatchNearest(t *testing.T) {
 			for _, bs := range [][2]int{{tc.w, tc.h}, {37, 23}, {16, 16}, {1, 1}} {
 				for _, masked := range []bool{false, true} {
 					got := make([]float64, tc.w*tc.h)
-					buf := make([]float64, bs[0]*bs[1])
-					nb := make([]uint64, bs[0]*bs[1])
-					for y0 := 0; y0 < tc.h; y0 += bs[1] {
-						for x0 := 0; x0 < tc.w; x0 += bs[0] {
-							w, h := min(bs[0], tc.w-x0), min(bs[1], tc.h-y0)
-							var nd []uint64
-							if masked {
-								nd = nb[:w*h]
-								for y := range h {
-									copy(nd[y*w:(y+1)*w], need[(y0+y)*tc.w+x0:])
-								}
-							}
-							f.Distances(x0, y0, w, h, nd, buf)
-							for y := range h {
-								copy(got[(y0+y)*tc.w+x0:(y0+y)*tc.w+x0+w], buf[y*w:(y+1)*w])
-							}
-						}
+					var mask []uint64
+					if masked {
+						mask = need
 					}
+					walkTiles(tc.w, tc.h, bs[0], bs[1], mask, [][]float64{got}, func(x0, y0, w, h int, n []uint64, bufs [][]float64) {
+						f.Distances(x0, y0, w, h, n, bufs[0])
+					})
 					bad := 0
 					for i := range got {
 						exp := want[i]
