@@ -32,23 +32,19 @@ func (s *Study) draws() metrics.Draws {
 	return metrics.Draws{N: s.res.PointCounts.Test, B: s.o.Iterations, Seed: s.o.Seed}
 }
 
-// evaluator keeps the evaluator of model on extent for the paired
-// comparisons and returns the AUC's SD over the paired resamples.
-func (s *Study) evaluator(model, ext string, acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (float64, error) {
+// evaluator returns the evaluator of a model on an extent for the paired
+// comparisons and the AUC's SD over the paired resamples.
+func (s *Study) evaluator(acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (*metrics.Evaluator, float64, error) {
 	ths := make([]float64, len(out.Thresholds))
 	for i, t := range out.Thresholds {
 		ths[i] = t.Value
 	}
 	ev, err := metrics.NewEvaluator(acc, test, global, ths, set)
 	if err != nil {
-		return 0, err
+		return nil, 0, err
 	}
-	if s.evals == nil {
-		s.evals = map[[2]string]*metrics.Evaluator{}
-	}
-	s.evals[[2]string{model, ext}] = ev
 	sd, _ := ev.BootSD(s.draws())
-	return sd, nil
+	return ev, sd, nil
 }
 
 // paired fills Results.Paired: for every model and null, each scored

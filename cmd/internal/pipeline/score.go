@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"hash/fnv"
 	"math"
+	"runtime"
+	"sync"
 	"time"
 
 	"areasweep/cmd/internal/pass"
@@ -54,10 +56,32 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds,
 		ThresholdTrain: append([]float64{}, mp.train...)}
 	in := pointsIn{s: s, vals: p.vals, valid: p.valid, global: s.globalTest()}
-	for k := range s.fam.Members {
-		if err := s.scoreExtent(m.Name, k, sums.Accs[k], in, len(mp.test), set); err != nil {
-			return err
+	// The extents are scored at once on the workers (each extent's
+	// bootstrap has its own seed, deriveSeed, so nothing depends on the
+	// schedule) and recorded in member order.
+	n := len(s.fam.Members)
+	scores := make([]extentScore, n)
+	errs := make([]error, n)
+	workers := s.o.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	sem := make(chan struct{}, max(1, workers))
+	var wg sync.WaitGroup
+	for k := range n {
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer func() { <-sem; wg.Done() }()
+			scores[k], errs[k] = s.scoreExtent(m.Name, k, sums.Accs[k], in, len(mp.test), set)
+		}()
+	}
+	wg.Wait()
+	for k := range n {
+		if errs[k] != nil {
+			return errs[k]
 		}
+		s.recordExtent(m.Name, scores[k])
 	}
 	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(s.fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, sums.Accs, in.values); err != nil {
@@ -124,44 +148,66 @@ func (q pointsIn) testIDs(k int) (global, ids []int) {
 	return global, ids
 }
 
+// extentScore is one model's score on one member, computed by
+// scoreExtent and recorded by recordExtent.
+type extentScore struct {
+	sc    report.Score
+	ev    *metrics.Evaluator // nil when not scored
+	curve report.Curve
+}
+
 // scoreExtent scores model on member k from its accumulator acc: nothing
 // for an empty or duplicate member, else metrics.Score on the points
 // inside, the paired evaluator and the ROC curve. nTest is the number of
-// the model's scored test points (for those outside the extent).
-func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in pointsIn, nTest int, set metrics.Settings) error {
+// the model's scored test points (for those outside the extent). It only
+// reads the study, so several extents may be scored at once.
+func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in pointsIn, nTest int, set metrics.Settings) (extentScore, error) {
 	mem := s.fam.Members[k]
 	sc := report.Score{Model: model, Extent: mem.ID, PartialROC: []report.PartialROC{}, Thresholds: []report.Threshold{}}
 	switch mem.Status {
 	case vocab.StatusEmpty:
 		sc.NotScored = "extent covers no valid cell"
-		s.res.Scores = append(s.res.Scores, sc)
-		return nil
+		return extentScore{sc: sc}, nil
 	case vocab.StatusDuplicate:
 		sc.NotScored = "same cells as " + mem.DuplicateOf
-		s.res.Scores = append(s.res.Scores, sc)
-		return nil
+		return extentScore{sc: sc}, nil
 	}
 	train, test := in.values(k, vocab.RoleTrain), in.values(k, vocab.RoleTest)
 	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
 	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
 	out, err := metrics.Score(acc, train, test, set)
 	if err != nil {
-		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
 	}
 	sc.SetScores(out, pass.AreaUnitsPerKm2)
 	if !sc.Scored {
-		s.res.Scores = append(s.res.Scores, sc)
-		return nil
+		return extentScore{sc: sc}, nil
 	}
 	global, ids := in.testIDs(k)
 	sc.TestPointIDs = ids
-	if sc.AUCBootSD, err = s.evaluator(model, mem.ID, acc, test, global, out, set); err != nil {
-		return fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
+	ev, sd, err := s.evaluator(acc, test, global, out, set)
+	if err != nil {
+		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
 	}
-	s.res.Curves = append(s.res.Curves, report.NewCurve(model, mem.ID, out.Curve))
+	sc.AUCBootSD = sd
+	return extentScore{sc: sc, ev: ev, curve: report.NewCurve(model, mem.ID, out.Curve)}, nil
+}
+
+// recordExtent records one scoreExtent result: the score, and for a scored
+// extent its curve, its paired evaluator and a log line.
+func (s *Study) recordExtent(model string, r extentScore) {
+	sc := r.sc
+	if r.ev != nil {
+		if s.evals == nil {
+			s.evals = map[[2]string]*metrics.Evaluator{}
+		}
+		s.evals[[2]string{model, sc.Extent}] = r.ev
+		s.res.Curves = append(s.res.Curves, r.curve)
+	}
 	s.res.Scores = append(s.res.Scores, sc)
-	s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", model, mem.ID, sc.AUC, s.o.E[0], firstRatio(sc))
-	return nil
+	if r.ev != nil {
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", model, sc.Extent, sc.AUC, s.o.E[0], firstRatio(sc))
+	}
 }
 
 func firstRatio(sc report.Score) string {
