@@ -9,7 +9,6 @@ import (
 	"syscall"
 	"testing"
 
-	"areasweep/extent"
 	"areasweep/extent/nullmodel"
 )
 
@@ -39,14 +38,7 @@ func BenchmarkNullVsRaster(b *testing.B) {
 			x, y := float64(c)/float64(w)-0.5, float64(r)/float64(h)-0.5
 			return float32(math.Exp(-(x*x+y*y)*8) + 0.02*math.Sin(float64(c)/37)*math.Cos(float64(r)/53))
 		}, "TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE")
-		rg, err := extent.OpenGrid(path)
-		if err != nil {
-			b.Fatal(err)
-		}
-		r, err := Open(path)
-		if err != nil {
-			b.Fatal(err)
-		}
+		rg, r := openPath(b, path)
 		rfam := fullFamily(rg, 8)
 		rlayout := mustLayout(b, 0, 1)
 		g, v, layout, fam := nullBenchStudy(b, cells)

@@ -65,6 +65,12 @@ func openTestRaster(tb testing.TB, w, h int) (*extent.Grid, *Raster) {
 	tb.Helper()
 	path := filepath.Join(tb.TempDir(), "m.tif")
 	writeTestRaster(tb, path, w, h)
+	return openPath(tb, path)
+}
+
+// openPath opens the grid and the band of the raster at path.
+func openPath(tb testing.TB, path string) (*extent.Grid, *Raster) {
+	tb.Helper()
 	g, err := extent.OpenGrid(path)
 	if err != nil {
 		tb.Fatal(err)
@@ -338,14 +344,7 @@ func TestAnyValid(t *testing.T) {
 			}
 			return -9999
 		}, "TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64")
-		g, err := extent.OpenGrid(path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		r, err := Open(path)
-		if err != nil {
-			t.Fatal(err)
-		}
+		g, r := openPath(t, path)
 		fam := extent.NewFamilyFromRuns(g, []extent.Member{{ID: "left", Status: vocab.StatusOK}}, func(k, row int) []int32 { return []int32{0, 100} })
 		layout, _ := metrics.NewLayout([]float64{0.5}, 64)
 		_, st, err := r.Score(g, fam, layout, Options{Workers: 2})

@@ -6,7 +6,6 @@ import (
 	"path/filepath"
 	"testing"
 
-	"areasweep/extent"
 	"areasweep/metrics"
 )
 
@@ -55,14 +54,7 @@ func TestExactRangeLayouts(t *testing.T) {
 	for _, l := range layouts {
 		path := filepath.Join(dir, l.name+".tif")
 		writeLayout(t, path, w, h, l.overviews, l.opts...)
-		g, err := extent.OpenGrid(path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		r, err := Open(path)
-		if err != nil {
-			t.Fatal(err)
-		}
+		g, r := openPath(t, path)
 		lo, hi, ok, err := r.ExactRange()
 		if err != nil || !ok {
 			t.Fatalf("%s: %v %v", l.name, ok, err)

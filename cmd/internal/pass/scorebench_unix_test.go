@@ -81,15 +81,8 @@ func BenchmarkRasterScore(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-	g, err := extent.OpenGrid(path)
-	if err != nil {
-		b.Fatal(err)
-	}
+	g, r := openPath(b, path)
 	defer g.Close()
-	r, err := Open(path)
-	if err != nil {
-		b.Fatal(err)
-	}
 	defer r.Close()
 	layout := mustLayout(b, 0, 1)
 	fams := benchFamilies(g)
