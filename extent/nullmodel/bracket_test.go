@@ -149,11 +149,7 @@ func TestBracketContainsDistance(t *testing.T) {
 func BenchmarkFieldBracket(b *testing.B) {
 	for _, sites := range []int{100, 1000} {
 		for _, side := range []int{1024, 2048} {
-			lats, lons := clusteredSites(sites, 0, 40, 0.01*float64(side), 40+0.01*float64(side), 5)
-			ix, err := geodesy.NewIndex(lats, lons)
-			if err != nil {
-				b.Fatal(err)
-			}
+			lats, lons, ix := benchIndex(b, sites, side)
 			north := 40 + 0.01*float64(side)
 			f := NewLonLat(ix, 0, 0.01, north, -0.01)
 			far := f.FarthestBound(side, side, 64)

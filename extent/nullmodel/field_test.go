@@ -125,6 +125,18 @@ func TestFillSign(t *testing.T) {
 	}
 }
 
+// benchIndex is the site index of the field benchmarks: sites training
+// points in clusters (and their coordinates) over a side x side grid of 0.01-degree cells whose
+// south-west corner is (0, 40).
+func benchIndex(b *testing.B, sites, side int) (lats, lons []float64, ix *geodesy.Index) {
+	lats, lons = clusteredSites(sites, 0, 40, 0.01*float64(side), 40+0.01*float64(side), 5)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return lats, lons, ix
+}
+
 // BenchmarkDistances measures the distance field on a latitude-longitude
 // grid of 0.01-degree cells (about 1 km) with training points in clusters,
 // per block of 256 x 256 cells: the cost of the null model's values in a
@@ -132,11 +144,7 @@ func TestFillSign(t *testing.T) {
 func BenchmarkDistances(b *testing.B) {
 	for _, sites := range []int{100, 1000} {
 		for _, side := range []int{1024, 2048} {
-			lats, lons := clusteredSites(sites, 0, 40, 0.01*float64(side), 40+0.01*float64(side), 5)
-			ix, err := geodesy.NewIndex(lats, lons)
-			if err != nil {
-				b.Fatal(err)
-			}
+			_, _, ix := benchIndex(b, sites, side)
 			f := New(ix, lonLatGrid(0, 40+0.01*float64(side), 0.01))
 			buf := make([]float64, 256*256)
 			b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
