@@ -150,38 +150,66 @@ func (r *Raster) Close() error { return r.ds.Close() }
 func (r *Raster) valid(v float64) bool { return !math.IsNaN(v) }
 
 // Sample returns the raster's value at each cell index (row*width+col) and
-// whether it is valid. Cells < 0 are reported invalid. The cells are read
-// block by block (in the file's block order), so that each block that
-// holds points is decoded once, whatever the order of the cells and
-// however many blocks GDAL's cache holds.
+// whether it is valid. Cells < 0 are reported invalid. The blocks that
+// hold cells are shared out in file order among up to GOMAXPROCS workers,
+// each with its own handle on the file (as a pass's workers), so that each
+// block is decoded once, whatever the order of the cells. A value does not
+// depend on the worker that read it.
 func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) {
 	vals := make([]float64, len(cells))
 	ok := make([]bool, len(cells))
-	buf := make([]float64, 1)
 	bw, bh := max(r.blockW, 1), max(r.blockH, 1)
-	blockOf := func(c int) (int, int) { return (c / g.Width) / bh, (c % g.Width) / bw }
-	order := make([]int, len(cells))
-	for i := range order {
-		order[i] = i
+	nbx := (g.Width + bw - 1) / bw
+	blockOf := func(c int) int { return (c/g.Width)/bh*nbx + (c%g.Width)/bw }
+	var order []int
+	for i, c := range cells {
+		if c >= 0 {
+			order = append(order, i)
+		}
 	}
-	slices.SortStableFunc(order, func(a, b int) int {
-		ra, ca := blockOf(cells[a])
-		rb, cb := blockOf(cells[b])
-		if ra != rb {
-			return ra - rb
+	slices.SortStableFunc(order, func(a, b int) int { return blockOf(cells[a]) - blockOf(cells[b]) })
+	// groups[k] = order[starts[k]:starts[k+1]]: the cells of one block.
+	var starts []int
+	for k, i := range order {
+		if k == 0 || blockOf(cells[i]) != blockOf(cells[order[k-1]]) {
+			starts = append(starts, k)
 		}
-		return ca - cb
-	})
-	for _, i := range order {
-		c := cells[i]
-		if c < 0 {
-			continue
+	}
+	starts = append(starts, len(order))
+	nb := len(starts) - 1
+	workers := min(runtime.GOMAXPROCS(0), nb)
+	errs := make([]error, max(workers, 1))
+	var wg sync.WaitGroup
+	for w := range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			src, err := r.open()
+			if err != nil {
+				errs[w] = err
+				return
+			}
+			defer src.Close()
+			buf := make([]float64, 1)
+			// Worker w reads a contiguous share of the blocks, in file
+			// order, a cell at a time: GDAL decodes a block once and keeps
+			// it for the next cells.
+			for _, i := range order[starts[nb*w/workers]:starts[nb*(w+1)/workers]] {
+				c := cells[i]
+				if err := src.ReadBlock(c%g.Width, c/g.Width, 1, 1, buf); err != nil {
+					errs[w] = err
+					return
+				}
+				r.decode(buf)
+				vals[i], ok[i] = buf[0], r.valid(buf[0])
+			}
+		}()
+	}
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return nil, nil, err
 		}
-		if err := r.band.Read(c%g.Width, c/g.Width, buf, 1, 1); err != nil {
-			return nil, nil, fmt.Errorf("pass: %s: the cell at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, c%g.Width, c/g.Width, gdalmsg.Cause(err.Error()))
-		}
-		r.decode(buf)
-		vals[i], ok[i] = buf[0], r.valid(buf[0])
 	}
 	return vals, ok, nil
 }
