@@ -81,9 +81,8 @@ type Grid struct {
 	factorStep  int
 	factorW     int
 
-	mu    sync.Mutex
-	toLL  *godal.Transform // grid CRS -> WGS84 lon/lat
-	frLL  *godal.Transform // WGS84 lon/lat -> grid CRS
+	toLL  *transforms // grid CRS -> WGS84 lon/lat
+	frLL  *transforms // WGS84 lon/lat -> grid CRS
 	srs   *godal.SpatialRef
 	wgs84 *godal.SpatialRef
 }
@@ -167,10 +166,11 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
 		return g, nil
 	}
-	if g.toLL, err = godal.NewTransform(sr, wgs); err != nil {
+	if g.toLL, err = newTransforms(sr, wgs); err != nil {
 		return nil, fmt.Errorf("extent: cannot transform the raster CRS to WGS84: %w", err)
 	}
-	if g.frLL, err = godal.NewTransform(wgs, sr); err != nil {
+	if g.frLL, err = newTransforms(wgs, sr); err != nil {
+		g.toLL.close()
 		return nil, fmt.Errorf("extent: cannot transform WGS84 to the raster CRS: %w", err)
 	}
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
@@ -235,10 +235,10 @@ func CheckGeoTransform(width, height int, gt [6]float64) error {
 // Close releases the grid's coordinate transformations.
 func (g *Grid) Close() {
 	if g.toLL != nil {
-		g.toLL.Close()
+		g.toLL.close()
 	}
 	if g.frLL != nil {
-		g.frLL.Close()
+		g.frLL.close()
 	}
 }
 
@@ -375,16 +375,78 @@ func wrapInto(lon, west float64) float64 {
 	return lon
 }
 
-func (g *Grid) transform(t *godal.Transform, xs, ys []float64) {
+func (g *Grid) transform(p *transforms, xs, ys []float64) {
 	ok := make([]bool, len(xs))
-	g.mu.Lock()
+	t := p.get()
 	err := t.TransformEx(xs, ys, nil, ok)
-	g.mu.Unlock()
+	p.put(t)
 	for i := range xs {
 		if err != nil && !ok[i] || !ok[i] {
 			xs[i], ys[i] = math.NaN(), math.NaN()
 		}
 	}
+}
+
+// transforms hands out coordinate transformations from one CRS to
+// another, one caller at a time each (a GDAL transformation is not safe
+// for concurrent use): as many as callers ask at once, made on demand, so
+// that the workers of a pass or of the extents' distance fields on a
+// projected grid convert their cells at the same time instead of taking
+// turns on one. Every transformation is made from the same two CRSs, so
+// each gives the same coordinates.
+type transforms struct {
+	src, dst *godal.SpatialRef
+	mu       sync.Mutex
+	cond     *sync.Cond
+	free     []*godal.Transform
+	all      []*godal.Transform
+}
+
+func newTransforms(src, dst *godal.SpatialRef) (*transforms, error) {
+	t, err := godal.NewTransform(src, dst)
+	if err != nil {
+		return nil, err
+	}
+	p := &transforms{src: src, dst: dst, free: []*godal.Transform{t}, all: []*godal.Transform{t}}
+	p.cond = sync.NewCond(&p.mu)
+	return p, nil
+}
+
+// get returns a transformation no other caller holds: a free one, a new
+// one, or, when making one fails, the next one put back.
+func (p *transforms) get() *godal.Transform {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if len(p.free) == 0 {
+		if t, err := godal.NewTransform(p.src, p.dst); err == nil {
+			p.all = append(p.all, t)
+			return t
+		}
+		for len(p.free) == 0 {
+			p.cond.Wait()
+		}
+	}
+	t := p.free[len(p.free)-1]
+	p.free = p.free[:len(p.free)-1]
+	return t
+}
+
+// put gives back a transformation from get.
+func (p *transforms) put(t *godal.Transform) {
+	p.mu.Lock()
+	p.free = append(p.free, t)
+	p.mu.Unlock()
+	p.cond.Signal()
+}
+
+// close releases every transformation; none may be held.
+func (p *transforms) close() {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for _, t := range p.all {
+		t.Close()
+	}
+	p.all, p.free = nil, nil
 }
 
 // RowLonLat fills lons and lats (length Width) with the WGS84 coordinates
