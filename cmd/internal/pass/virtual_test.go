@@ -271,9 +271,22 @@ func BenchmarkNullPass(b *testing.B) {
 // about cells cells (see BenchmarkNullPass): the grid (to be closed), the
 // virtual null, its layout and a family of 8 extents covering the grid.
 func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
+	return nullBenchStudyOn(b, cells, "EPSG:4326")
+}
+
+// nullBenchStudyOn is nullBenchStudy on a grid in crs: EPSG:4326 (the 60 x
+// 40 degree window), or EPSG:3035 (Lambert azimuthal equal-area Europe): a
+// window of 6000 x 4000 km centred near 10 E, 50 N (x from 1320 to 7320 km,
+// y from 990 to 4990 km), the same shape in cells, with the same training
+// points (those outside the window are left out of the layout).
+func nullBenchStudyOn(b *testing.B, cells float64, crs string) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
 	h := int(math.Round(math.Sqrt(cells / 1.5)))
 	w := int(math.Round(float64(h) * 1.5))
-	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
+	gt := [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}
+	if crs == "EPSG:3035" {
+		gt = [6]float64{1.32e6, 6e6 / float64(w), 0, 4.99e6, 0, -4e6 / float64(h)}
+	}
+	g, err := extent.NewGrid(w, h, gt, crs)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -294,9 +307,12 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 	f := DistanceNull(g, ix)
 	v := NewVirtual(g, f)
 	var pc []int
+	xs, ys := make([]float64, len(plats)), make([]float64, len(plats))
+	g.FromLonLat(plons, plats, xs, ys)
 	for i := range plats {
-		c, row, _ := g.CellOf(plons[i], plats[i])
-		pc = append(pc, row*w+c)
+		if c, row, ok := g.CellOf(xs[i], ys[i]); ok {
+			pc = append(pc, row*w+c)
+		}
 	}
 	vals, _, _ := v.Sample(g, pc)
 	layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(f, g, 4096)))

@@ -1,0 +1,193 @@
+package nullmodel
+
+import (
+	"math"
+	"testing"
+
+	"areasweep/extent/geodesy"
+)
+
+// sphereR is the radius (m) of the spherical projections of the tests.
+const sphereR = 6371000.0
+
+// laeaGrid returns Centres for a grid of square cells of side cell metres
+// with top-left corner (x0, y0) in a spherical Lambert azimuthal
+// equal-area projection centred at (lat1, lon0) (Snyder, Map projections:
+// a working manual, USGS PP 1395, 1987, eqs. 20-14, 20-15, 24-16, 24-17;
+// the inverse): a cell farther than 2R from the centre has no position
+// (NaN).
+func laeaGrid(x0, y0, cell, lat1, lon0 float64) Centres {
+	const rad = math.Pi / 180
+	s1, c1 := math.Sincos(lat1 * rad)
+	return func(row, ca, cb int, lons, lats []float64) {
+		y := y0 - (float64(row)+0.5)*cell
+		for c := ca; c < cb; c++ {
+			x := x0 + (float64(c)+0.5)*cell
+			rho := math.Hypot(x, y)
+			if rho == 0 {
+				lons[c-ca], lats[c-ca] = lon0, lat1
+				continue
+			}
+			cc := 2 * math.Asin(rho/(2*sphereR)) // NaN beyond 2R
+			sc, ccos := math.Sincos(cc)
+			lats[c-ca] = math.Asin(ccos*s1+y*sc*c1/rho) / rad
+			lons[c-ca] = lon0 + math.Atan2(x*sc, rho*c1*ccos-y*s1*sc)/rad
+		}
+	}
+}
+
+// polarGrid returns Centres for a grid of square cells of side cell metres
+// with top-left corner (x0, y0) in a spherical north polar stereographic
+// projection with central meridian lon0 (Snyder 1987, eqs. 21-5 to 21-7,
+// 20-14 and 20-16).
+func polarGrid(x0, y0, cell, lon0 float64) Centres {
+	return func(row, ca, cb int, lons, lats []float64) {
+		y := y0 - (float64(row)+0.5)*cell
+		for c := ca; c < cb; c++ {
+			x := x0 + (float64(c)+0.5)*cell
+			rho := math.Hypot(x, y)
+			lats[c-ca] = 90 - 2*math.Atan(rho/(2*sphereR))*180/math.Pi
+			lons[c-ca] = lon0 + math.Atan2(x, -y)*180/math.Pi
+		}
+	}
+}
+
+// TestBracketProjected checks Bracket on Fields made by New (the projected
+// path) against Distances and Index.Nearest on grids whose tiles are not
+// latitude-longitude rectangles: Lambert azimuthal equal-area with 2 km and
+// 50 km cells, one whose corner lies beyond the projection's domain (cells
+// with no position), and a polar stereographic grid around the pole. Every
+// bracket holds the exact distance, shares its bins at both ends and is
+// within 2 BracketTol; a degenerate bracket equals Nearest at the cell
+// centre bit for bit; cells with no position and cells not needed are NaN;
+// and the brackets are the same however the grid is cut into blocks (so
+// however it is cut into tiles), with and without a need mask. Most cells
+// near the sites must be bracketed (not exact), or the path is not tested.
+func TestBracketProjected(t *testing.T) {
+	cases := []struct {
+		name           string
+		cen            Centres
+		w, h           int
+		sw, ss, se, sn float64 // box of the sites
+		sites          int
+		minBracketed   float64 // share of cells
+	}{
+		{"laea-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 8, 51, 12, 53, 30, 0.9},
+		{"laea-50km", laeaGrid(-3000e3, 2200e3, 50000, 52, 10), 120, 90, 0, 45, 20, 58, 40, 0.1},
+		{"laea-edge", laeaGrid(11.5e6, 3.0e6, 40000, 52, 10), 80, 150, 150, -70, 175, -40, 10, 0},
+		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			lats, lons := clusteredSites(tc.sites, tc.sw, tc.ss, tc.se, tc.sn, 13)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			f := New(ix, tc.cen)
+			n := tc.w * tc.h
+			want := make([]float64, n)
+			f.Distances(0, 0, tc.w, tc.h, nil, want)
+			// Nearest at each centre, independently of Distances.
+			clon, clat := make([]float64, tc.w), make([]float64, tc.w)
+			nan := 0
+			for r := range tc.h {
+				tc.cen(r, 0, tc.w, clon, clat)
+				for c := range tc.w {
+					_, d := ix.Nearest(clat[c], clon[c], 0)
+					if v := want[r*tc.w+c]; v != d && !(math.IsNaN(v) && math.IsNaN(d)) {
+						t.Fatalf("cell %d,%d: Distances %v, Nearest %v", c, r, v, d)
+					}
+					if math.IsNaN(d) {
+						nan++
+					}
+				}
+			}
+			if tc.name == "laea-edge" && (nan == 0 || nan == n) {
+				t.Fatalf("%d of %d cells with no position: the case must have some, not all", nan, n)
+			}
+			layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
+			need := make([]uint64, n)
+			for i := range need {
+				if i%11 != 3 {
+					need[i] = 1
+				}
+			}
+			var ref []float64
+			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}, {1, 1}} {
+				for _, masked := range []bool{false, true} {
+					lo, hi := make([]float64, n), make([]float64, n)
+					var mask []uint64
+					if masked {
+						mask = need
+					}
+					walkTiles(tc.w, tc.h, bs[0], bs[1], mask, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
+						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
+					})
+					exact, bad := 0, 0
+					for i, d := range want {
+						if masked && need[i] == 0 || math.IsNaN(d) {
+							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
+								t.Fatalf("blocks %v masked %v cell %d (distance %v): bracket [%v, %v], want NaN", bs, masked, i, d, lo[i], hi[i])
+							}
+							continue
+						}
+						b1, h1 := layout.Locate(0 - hi[i])
+						b2, h2 := layout.Locate(0 - lo[i])
+						ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
+						if lo[i] == hi[i] {
+							ok = lo[i] == d
+							exact++
+						}
+						if !ok {
+							if bad < 5 {
+								t.Errorf("blocks %v masked %v cell %d: bracket [%.9f, %.9f], distance %.9f", bs, masked, i, lo[i], hi[i], d)
+							}
+							bad++
+						}
+					}
+					if bad > 0 {
+						t.Fatalf("blocks %v masked %v: %d bad brackets", bs, masked, bad)
+					}
+					valid := n - nan
+					if !masked {
+						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, valid, 100*float64(exact)/float64(valid))
+						if got := float64(valid-exact) / float64(valid); got < tc.minBracketed {
+							t.Fatalf("blocks %v: %.1f%% of the cells bracketed, want at least %.0f%%", bs, 100*got, 100*tc.minBracketed)
+						}
+					}
+					key := append(append([]float64{}, lo...), hi...)
+					if ref == nil {
+						ref = key
+						continue
+					}
+					for i := range key {
+						j := i % n
+						if masked && need[j] == 0 {
+							continue
+						}
+						if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
+							t.Fatalf("blocks %v masked %v: bracket of cell %d differs from the one-block cut", bs, masked, j)
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestChordNarrowMax checks chordNarrowMax: from it to past maxChord no
+// chord bracket is narrow (hi - lo <= 2 BracketTol lo), so the projected
+// path may leave the shortest chord unknown there; and just below it some
+// are (it is not far above the narrow range, or cells would be computed
+// that a bracket could settle).
+func TestChordNarrowMax(t *testing.T) {
+	for d := chordNarrowMax; d < 2*maxChord; d *= 1.0001 {
+		if lo, hi := chordBracket(d); hi-lo <= 2*BracketTol*lo {
+			t.Fatalf("chord %.0f m: bracket [%v, %v] is narrow", d, lo, hi)
+		}
+	}
+	if lo, hi := chordBracket(0.9 * chordNarrowMax); !(hi-lo <= 2*BracketTol*lo) {
+		t.Fatalf("chord %.0f m: bracket [%v, %v] is not narrow", 0.9*chordNarrowMax, lo, hi)
+	}
+}
