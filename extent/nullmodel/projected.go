@@ -34,6 +34,17 @@ type projScratch struct {
 	sites      []projSite // the tile's candidates by chord from its centre
 	near       []projSite // those that can give a cell its shortest chord
 	order      []projOrder
+	clo, chi   []float64 // the chord bracket of the cells left to the anchors
+	pend       []bool    // per block cell: left to the anchors
+	anchor     []projAnchor
+	asites     []projSite // the anchor's measured sites, for exact cells
+}
+
+// projAnchor is a site measured at a tile's anchor: its exact distance
+// and the sine and cosine of the azimuth towards it there.
+type projAnchor struct {
+	f0, sz, cz float64
+	site       projSite
 }
 
 // projOrder is a candidate site of a cell computed exactly, with its
@@ -48,7 +59,8 @@ var projPool = sync.Pool{New: func() any { return new(projScratch) }}
 // projBracketer is the state of one Bracket call on a Field made by New.
 type projBracketer struct {
 	f          *Field
-	w          int
+	x0, y0     int
+	w, h       int
 	lons, lats []float64
 	ex, ey, ez []float64
 	lo, hi     []float64
@@ -127,6 +139,11 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 		f.centres(y0+y, x0, x0+w, lons[y*w:(y+1)*w], lats[y*w:(y+1)*w])
 	}
 	ex, ey, ez := sc.ex[:n], sc.ey[:n], sc.ez[:n]
+	if cap(sc.pend) < n {
+		sc.pend, sc.clo, sc.chi = make([]bool, n), make([]float64, n), make([]float64, n)
+	}
+	pend := sc.pend[:n]
+	clear(pend)
 	for i := range n {
 		lo[i], hi[i] = math.NaN(), math.NaN()
 		ex[i] = math.NaN()
@@ -135,11 +152,16 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 			ex[i], ey[i], ez[i] = p[0], p[1], p[2]
 		}
 	}
-	b := projBracketer{f: f, w: w, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
+	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
 		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}}
 	for r0 := 0; r0 < h; r0 += tileSide {
 		for c0 := 0; c0 < w; c0 += tileSide {
 			b.tile(r0, min(r0+tileSide, h), c0, min(c0+tileSide, w))
+		}
+	}
+	for tr := floorDiv(y0, tileSide); tr*tileSide < y0+h; tr++ {
+		for tc := floorDiv(x0, tileSide); tc*tileSide < x0+w; tc++ {
+			b.anchored(tr, tc)
 		}
 	}
 }
@@ -269,6 +291,11 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 				b.lo[i], b.hi[i] = lo, hi
 				continue
 			}
+			if hi-lo > exactWidth*b.bins.binW {
+				// Too wide: left to the anchor of the cell's tile.
+				sc.pend[i], sc.clo[i], sc.chi[i] = true, lo, hi
+				continue
+			}
 			d := b.exact(i, sites)
 			b.lo[i], b.hi[i] = d, d
 		}
@@ -302,4 +329,215 @@ func (b *projBracketer) exact(i int, sites []projSite) float64 {
 		best = math.Min(best, geodesy.Distance(lat, lon, s.lat, s.lon))
 	}
 	return best
+}
+
+// anchored brackets the cells of the block in global tile (tr, tc) (rows
+// tr*16 to tr*16+15 and columns tc*16 to tc*16+15 of the grid) that their
+// chord left too wide, from the tile's anchor, its centre cell (tr*16+8,
+// tc*16+8), whatever the block: see bracketProjected. A cell whose bracket
+// is still too wide or across a bin is computed exactly.
+func (b *projBracketer) anchored(tr, tc int) {
+	sc := b.sc
+	r0, r1 := max(tr*tileSide-b.y0, 0), min((tr+1)*tileSide-b.y0, b.h)
+	c0, c1 := max(tc*tileSide-b.x0, 0), min((tc+1)*tileSide-b.x0, b.w)
+	any := false
+	for r := r0; r < r1 && !any; r++ {
+		for c := c0; c < c1; c++ {
+			if sc.pend[r*b.w+c] {
+				any = true
+				break
+			}
+		}
+	}
+	if !any {
+		return
+	}
+	ar, ac := tr*tileSide+tileSide/2, tc*tileSide+tileSide/2
+	var alat, alon float64
+	if y, x := ar-b.y0, ac-b.x0; y >= 0 && y < b.h && x >= 0 && x < b.w {
+		alat, alon = b.lats[y*b.w+x], b.lons[y*b.w+x]
+	} else {
+		var lo, la [1]float64
+		b.f.centres(ar, ac, ac+1, lo[:], la[:])
+		alat, alon = la[0], lo[0]
+	}
+	if !validLonLat(alat, alon) {
+		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0)
+		return
+	}
+	pa := ecef(alat, alon)
+	// The largest upper bound on a pending cell's geodesic from the anchor.
+	tmax := 0.0
+	for r := r0; r < r1; r++ {
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			if !sc.pend[i] {
+				continue
+			}
+			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
+			if _, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz)); !math.IsInf(th, 1) {
+				tmax = math.Max(tmax, th)
+			}
+		}
+	}
+	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
+	b.taylorCells(r0, r1, c0, c1, alat, alon, pa)
+}
+
+// anchorSites measures at the anchor (alat, alon) (ECEF pa) every site
+// that can be nearest to a pending cell within tmax of it or give it the
+// smallest bracket, into sc.anchor (by distance) and sc.asites; with no
+// anchor (alat NaN) it computes the pending cells exactly instead.
+func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64, tmax float64) {
+	sc := b.sc
+	ix := b.f.ix
+	if math.IsNaN(alat) {
+		for r := r0; r < r1; r++ {
+			for c := c0; c < c1; c++ {
+				if i := r*b.w + c; sc.pend[i] {
+					_, d := ix.Nearest(b.lats[i], b.lons[i], 0)
+					b.lo[i], b.hi[i] = d, d
+					sc.pend[i] = false
+				}
+			}
+		}
+		return
+	}
+	_, d1 := ix.NearestBounds(alat, alon, 0)
+	slack := 2*tmax + 2*(1e-3+1e-9*d1) + 1
+	sc.cands = ix.Within(alat, alon, d1+slack, sc.cands[:0])
+	sc.sites = sc.sites[:0]
+	for _, k := range sc.cands {
+		lat, lon := ix.Site(k)
+		p := ecef(lat, lon)
+		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pa, p), lat: lat, lon: lon})
+	}
+	sites := sc.sites
+	for i := 1; i < len(sites); i++ {
+		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
+			sites[j], sites[j-1] = sites[j-1], sites[j]
+		}
+	}
+	best := math.Inf(1)
+	an := sc.anchor[:0]
+	for _, st := range sites {
+		if l, _ := chordBracket(st.cc); l > best+slack {
+			break // this site and the later ones are farther still
+		}
+		f0, az, _ := geodesy.Inverse(alat, alon, st.lat, st.lon)
+		sz, cz := math.Sincos(az * math.Pi / 180)
+		an = append(an, projAnchor{f0: f0, sz: sz, cz: cz, site: st})
+		best = math.Min(best, f0)
+	}
+	keep := an[:0]
+	for _, m := range an {
+		if m.f0 <= best+slack {
+			keep = append(keep, m)
+		}
+	}
+	an = keep
+	for i := 1; i < len(an); i++ {
+		for j := i; j > 0 && an[j].f0 < an[j-1].f0; j-- {
+			an[j], an[j-1] = an[j-1], an[j]
+		}
+	}
+	sc.anchor = an
+	sc.asites = sc.asites[:0]
+	for _, m := range an {
+		sc.asites = append(sc.asites, m.site)
+	}
+}
+
+// taylorCells brackets each pending cell of the tile from the sites
+// measured at the anchor (alat, alon), ECEF pa (see bracketProjected),
+// keeps the intersection with its chord bracket when it is narrow and
+// inside one bin, and computes the cell exactly otherwise.
+func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64) {
+	sc := b.sc
+	const rad = math.Pi / 180
+	sp, cp := math.Sincos(alat * rad)
+	sl, cl := math.Sincos(alon * rad)
+	east := [3]float64{-sl, cl, 0}
+	north := [3]float64{-sp * cl, -sp * sl, cp}
+	k2 := chordKappa * chordKappa / 6
+	for r := r0; r < r1; r++ {
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			if !sc.pend[i] {
+				continue
+			}
+			sc.pend[i] = false
+			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
+			tl, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
+			if math.IsInf(th, 1) {
+				d := b.exact(i, sc.asites)
+				b.lo[i], b.hi[i] = d, d
+				continue
+			}
+			wn := dx*north[0] + dy*north[1] + dz*north[2]
+			we := dx*east[0] + dy*east[1] + dz*east[2]
+			e1 := k2*th*th*th + 1e-6
+			lo, hi := math.Inf(1), math.Inf(1)
+			for q := range sc.anchor {
+				m := &sc.anchor[q]
+				margin := 1e-3 + 1e-9*m.f0
+				if m.f0-th-margin > hi {
+					break // this site and the farther ones change neither end
+				}
+				l1, h1 := projTaylor(m, tl, th, -(m.cz*wn + m.sz*we), e1, margin)
+				lo, hi = min(lo, l1), min(hi, h1)
+			}
+			lo, hi = max(lo, sc.clo[i]), min(hi, sc.chi[i])
+			if hi-lo <= 2*BracketTol*lo && b.bins.sameBins(lo, hi) {
+				b.lo[i], b.hi[i] = lo, hi
+				continue
+			}
+			d := b.exact(i, sc.asites)
+			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// projTaylor returns bounds on the distance to site m from a cell at
+// geodesic length t in [tl, th] from the anchor, where tc = <w, -v> for
+// w the projection of the cell's ECEF offset onto the anchor's tangent
+// plane and v the unit vector towards the site (so |tc - t f'(0)| <= e1,
+// see bracketProjected), widened by margin.
+func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) {
+	lo, hi = math.Max(0, m.f0-th-margin), m.f0+th+margin
+	if !(m.f0 > 2*th && m.f0+th < maxTaylorDist) {
+		return lo, hi
+	}
+	a1, a2 := tc-e1, tc+e1
+	// f'(0) = t f'(0) / t in [cl, ch].
+	cl, ch := -1.0, 1.0
+	if tl > 0 {
+		cl = math.Max(-1, math.Min(a1/tl, a1/th))
+		ch = math.Min(1, math.Max(a2/tl, a2/th))
+	}
+	h2 := 1 / (m.f0 - th)
+	h1 := hLoFast(m.f0 + th)
+	// f' runs over [cl, ch + t B] (f'' in [A, B], A >= 0): 1 - f'^2 over
+	// that range bounds f''/h; B first from q2 <= 1, then once more.
+	b := h2
+	for range 2 {
+		b = h2 * (1 - minSq(cl, math.Min(1, ch+th*b)))
+	}
+	x2 := math.Min(1, ch+th*b)
+	q1 := math.Max(0, 1-math.Max(cl*cl, x2*x2))
+	if l := m.f0 + a1 + h1*q1*tl*tl/2 - margin; l > lo {
+		lo = l
+	}
+	if h := m.f0 + a2 + b*th*th/2 + margin; h < hi {
+		hi = h
+	}
+	return lo, hi
+}
+
+// minSq returns the smallest x^2 for x in [x1, x2].
+func minSq(x1, x2 float64) float64 {
+	if x1 <= 0 && x2 >= 0 {
+		return 0
+	}
+	return math.Min(x1*x1, x2*x2)
 }
