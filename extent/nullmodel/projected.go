@@ -34,6 +34,8 @@ type projScratch struct {
 	sites      []projSite // the tile's candidates by chord from its centre
 	near       []projSite // those that can give a cell its shortest chord
 	order      []projOrder
+	fetchA     []int // per block row: the columns [fetchA, fetchZ) have their centres
+	fetchZ     []int
 	clo, chi   []float64 // the chord bracket of the cells left to the anchors
 	pend       []bool    // per block cell: left to the anchors
 	anchor     []projAnchor
@@ -135,8 +137,26 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 		sc.ex, sc.ey, sc.ez = make([]float64, n), make([]float64, n), make([]float64, n)
 	}
 	lons, lats := sc.lons[:n], sc.lats[:n]
+	// Centres (a projection per cell, most of the cost) only from the
+	// first to the last needed cell of each row.
+	if cap(sc.fetchA) < h {
+		sc.fetchA, sc.fetchZ = make([]int, h), make([]int, h)
+	}
+	fetchA, fetchZ := sc.fetchA[:h], sc.fetchZ[:h]
 	for y := range h {
-		f.centres(y0+y, x0, x0+w, lons[y*w:(y+1)*w], lats[y*w:(y+1)*w])
+		a, z := 0, w
+		if need != nil {
+			for a < w && need[y*w+a] == 0 {
+				a++
+			}
+			for z > a && need[y*w+z-1] == 0 {
+				z--
+			}
+		}
+		fetchA[y], fetchZ[y] = a, z
+		if a < z {
+			f.centres(y0+y, x0+a, x0+z, lons[y*w+a:y*w+z], lats[y*w+a:y*w+z])
+		}
 	}
 	ex, ey, ez := sc.ex[:n], sc.ey[:n], sc.ez[:n]
 	if cap(sc.pend) < n {
@@ -147,8 +167,8 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 	for i := range n {
 		lo[i], hi[i] = math.NaN(), math.NaN()
 		ex[i] = math.NaN()
-		if (need == nil || need[i] != 0) && validLonLat(lats[i], lons[i]) {
-			p := ecef(lats[i], lons[i])
+		if (need == nil || need[i] != 0) && validLonLat(lats[i], lons[i]) { // needed: fetched
+			p := projECEF(lats[i], lons[i])
 			ex[i], ey[i], ez[i] = p[0], p[1], p[2]
 		}
 	}
@@ -164,6 +184,20 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 			b.anchored(tr, tc)
 		}
 	}
+}
+
+// centre returns the latitude and longitude of the centre of cell (r, c)
+// of the block (block rows and columns; it may lie outside the block):
+// those fetched for the block, or else from Centres for that cell alone
+// (the same numbers: see Centres).
+func (b *projBracketer) centre(r, c int) (lat, lon float64) {
+	if r >= 0 && r < b.h && c >= b.sc.fetchA[r] && c < b.sc.fetchZ[r] {
+		i := r*b.w + c
+		return b.lats[i], b.lons[i]
+	}
+	var lo, la [1]float64
+	b.f.centres(b.y0+r, b.x0+c, b.x0+c+1, lo[:], la[:])
+	return la[0], lo[0]
 }
 
 // tile brackets the needed cells of rows [r0,r1) and columns [c0,c1) of
@@ -182,10 +216,9 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 		return
 	}
 	single := r1-r0 == 1 && c1-c0 == 1
-	ci := (r0+r1)/2*b.w + (c0+c1)/2
-	clat, clon := b.lats[ci], b.lons[ci]
+	clat, clon := b.centre((r0+r1)/2, (c0+c1)/2)
 	if validLonLat(clat, clon) {
-		pc := ecef(clat, clon)
+		pc := projECEF(clat, clon)
 		rho := 0.0
 		for r := r0; r < r1; r++ {
 			for c := c0; c < c1; c++ {
@@ -195,15 +228,15 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 				}
 				dx, dy, dz := b.ex[i]-pc[0], b.ey[i]-pc[1], b.ez[i]-pc[2]
 				_, hs := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
-				rho = math.Max(rho, hs)
+				rho = max(rho, hs)
 			}
 		}
 		if !math.IsInf(rho, 1) {
 			ix := b.f.ix
 			_, d1 := ix.NearestBounds(clat, clon, 0)
 			reach := d1 + rho
-			_, hc := chordBracket(math.Min(reach, chordNarrowMax))
-			b.sc.cands = ix.Within(clat, clon, rho+math.Max(reach, hc), b.sc.cands[:0])
+			_, hc := chordBracket(min(reach, chordNarrowMax))
+			b.sc.cands = ix.Within(clat, clon, rho+max(reach, hc), b.sc.cands[:0])
 			if k := len(b.sc.cands); single || k > 0 && k <= maxCandidates {
 				b.cells(r0, r1, c0, c1, pc, rho)
 				return
@@ -236,7 +269,7 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 	sc.sites = sc.sites[:0]
 	for _, k := range sc.cands {
 		lat, lon := b.f.ix.Site(k)
-		p := ecef(lat, lon)
+		p := projECEF(lat, lon)
 		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pc, p), lat: lat, lon: lon})
 	}
 	sites := sc.sites
@@ -326,7 +359,7 @@ func (b *projBracketer) exact(i int, sites []projSite) float64 {
 			break
 		}
 		s := &sites[o.q]
-		best = math.Min(best, geodesy.Distance(lat, lon, s.lat, s.lon))
+		best = min(best, geodesy.Distance(lat, lon, s.lat, s.lon))
 	}
 	return best
 }
@@ -353,19 +386,12 @@ func (b *projBracketer) anchored(tr, tc int) {
 		return
 	}
 	ar, ac := tr*tileSide+tileSide/2, tc*tileSide+tileSide/2
-	var alat, alon float64
-	if y, x := ar-b.y0, ac-b.x0; y >= 0 && y < b.h && x >= 0 && x < b.w {
-		alat, alon = b.lats[y*b.w+x], b.lons[y*b.w+x]
-	} else {
-		var lo, la [1]float64
-		b.f.centres(ar, ac, ac+1, lo[:], la[:])
-		alat, alon = la[0], lo[0]
-	}
+	alat, alon := b.centre(ar-b.y0, ac-b.x0)
 	if !validLonLat(alat, alon) {
 		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0)
 		return
 	}
-	pa := ecef(alat, alon)
+	pa := projECEF(alat, alon)
 	// The largest upper bound on a pending cell's geodesic from the anchor.
 	tmax := 0.0
 	for r := r0; r < r1; r++ {
@@ -376,7 +402,7 @@ func (b *projBracketer) anchored(tr, tc int) {
 			}
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
 			if _, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz)); !math.IsInf(th, 1) {
-				tmax = math.Max(tmax, th)
+				tmax = max(tmax, th)
 			}
 		}
 	}
@@ -409,7 +435,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 	sc.sites = sc.sites[:0]
 	for _, k := range sc.cands {
 		lat, lon := ix.Site(k)
-		p := ecef(lat, lon)
+		p := projECEF(lat, lon)
 		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pa, p), lat: lat, lon: lon})
 	}
 	sites := sc.sites
@@ -427,7 +453,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 		f0, az, _ := geodesy.Inverse(alat, alon, st.lat, st.lon)
 		sz, cz := math.Sincos(az * math.Pi / 180)
 		an = append(an, projAnchor{f0: f0, sz: sz, cz: cz, site: st})
-		best = math.Min(best, f0)
+		best = min(best, f0)
 	}
 	keep := an[:0]
 	for _, m := range an {
@@ -484,7 +510,13 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 				if m.f0-th-margin > hi {
 					break // this site and the farther ones change neither end
 				}
-				l1, h1 := projTaylor(m, tl, th, -(m.cz*wn + m.sz*we), e1, margin)
+				tc := -(m.cz*wn + m.sz*we)
+				if m.f0+tc-e1-margin > hi && m.f0 > 2*th && m.f0+th < maxTaylorDist {
+					// Both ends of this site's bracket lie above hi (the
+					// Taylor lower end is at least f0 + t f'(0)).
+					continue
+				}
+				l1, h1 := projTaylor(m, tl, th, tc, e1, margin)
 				lo, hi = min(lo, l1), min(hi, h1)
 			}
 			lo, hi = max(lo, sc.clo[i]), min(hi, sc.chi[i])
@@ -504,7 +536,7 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 // plane and v the unit vector towards the site (so |tc - t f'(0)| <= e1,
 // see bracketProjected), widened by margin.
 func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) {
-	lo, hi = math.Max(0, m.f0-th-margin), m.f0+th+margin
+	lo, hi = max(0, m.f0-th-margin), m.f0+th+margin
 	if !(m.f0 > 2*th && m.f0+th < maxTaylorDist) {
 		return lo, hi
 	}
@@ -512,8 +544,8 @@ func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) 
 	// f'(0) = t f'(0) / t in [cl, ch].
 	cl, ch := -1.0, 1.0
 	if tl > 0 {
-		cl = math.Max(-1, math.Min(a1/tl, a1/th))
-		ch = math.Min(1, math.Max(a2/tl, a2/th))
+		cl = max(-1, min(a1/tl, a1/th))
+		ch = min(1, max(a2/tl, a2/th))
 	}
 	h2 := 1 / (m.f0 - th)
 	h1 := hLoFast(m.f0 + th)
@@ -521,10 +553,10 @@ func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) 
 	// that range bounds f''/h; B first from q2 <= 1, then once more.
 	b := h2
 	for range 2 {
-		b = h2 * (1 - minSq(cl, math.Min(1, ch+th*b)))
+		b = h2 * (1 - minSq(cl, min(1, ch+th*b)))
 	}
-	x2 := math.Min(1, ch+th*b)
-	q1 := math.Max(0, 1-math.Max(cl*cl, x2*x2))
+	x2 := min(1, ch+th*b)
+	q1 := max(0, 1-max(cl*cl, x2*x2))
 	if l := m.f0 + a1 + h1*q1*tl*tl/2 - margin; l > lo {
 		lo = l
 	}
@@ -539,5 +571,18 @@ func minSq(x1, x2 float64) float64 {
 	if x1 <= 0 && x2 >= 0 {
 		return 0
 	}
-	return math.Min(x1*x1, x2*x2)
+	return min(x1*x1, x2*x2)
+}
+
+// projECEF returns the ECEF position (m) of geodetic (lat, lon) in
+// degrees, as ecef does, with the parametric latitude's norm taken by a
+// square root rather than math.Hypot (its terms lie in [-1, 1]).
+func projECEF(lat, lon float64) [3]float64 {
+	const rad = math.Pi / 180
+	sp, cp := math.Sincos(lat * rad)
+	sp *= 1 - geodesy.Flattening
+	r := 1 / math.Sqrt(sp*sp+cp*cp)
+	sl, cl := math.Sincos(lon * rad)
+	ar := geodesy.SemiMajor * cp * r
+	return [3]float64{ar * cl, ar * sl, geodesy.SemiMinor * sp * r}
 }

@@ -2,6 +2,7 @@ package nullmodel
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -107,28 +108,31 @@ func TestBracketProjected(t *testing.T) {
 				t.Fatalf("%d of %d cells with no position: the case must have some, not all", nan, n)
 			}
 			layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
-			need := make([]uint64, n)
-			for i := range need {
+			// Two need masks: 1 cell in 11 left out, and a sparse one
+			// (rows 3 to 5 of every 6 and a column in 4 left out), whose
+			// rows and tiles start and end at cells not needed.
+			dense, sparse := make([]uint64, n), make([]uint64, n)
+			for i := range dense {
 				if i%11 != 3 {
-					need[i] = 1
+					dense[i] = 1
+				}
+				if r, c := i/tc.w, i%tc.w; (r/3)%2 == 0 && c%4 != 1 {
+					sparse[i] = 1
 				}
 			}
 			var ref []float64
 			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}, {1, 1}} {
-				for _, masked := range []bool{false, true} {
+				for m, need := range [][]uint64{nil, dense, sparse} {
+					masked := need != nil
 					lo, hi := make([]float64, n), make([]float64, n)
-					var mask []uint64
-					if masked {
-						mask = need
-					}
-					walkTiles(tc.w, tc.h, bs[0], bs[1], mask, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
+					walkTiles(tc.w, tc.h, bs[0], bs[1], need, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
 						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
 					})
 					exact, bad := 0, 0
 					for i, d := range want {
 						if masked && need[i] == 0 || math.IsNaN(d) {
 							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
-								t.Fatalf("blocks %v masked %v cell %d (distance %v): bracket [%v, %v], want NaN", bs, masked, i, d, lo[i], hi[i])
+								t.Fatalf("blocks %v mask %d cell %d (distance %v): bracket [%v, %v], want NaN", bs, m, i, d, lo[i], hi[i])
 							}
 							continue
 						}
@@ -141,13 +145,13 @@ func TestBracketProjected(t *testing.T) {
 						}
 						if !ok {
 							if bad < 5 {
-								t.Errorf("blocks %v masked %v cell %d: bracket [%.9f, %.9f], distance %.9f", bs, masked, i, lo[i], hi[i], d)
+								t.Errorf("blocks %v mask %d cell %d: bracket [%.9f, %.9f], distance %.9f", bs, m, i, lo[i], hi[i], d)
 							}
 							bad++
 						}
 					}
 					if bad > 0 {
-						t.Fatalf("blocks %v masked %v: %d bad brackets", bs, masked, bad)
+						t.Fatalf("blocks %v mask %d: %d bad brackets", bs, m, bad)
 					}
 					valid := n - nan
 					if !masked {
@@ -167,7 +171,7 @@ func TestBracketProjected(t *testing.T) {
 							continue
 						}
 						if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
-							t.Fatalf("blocks %v masked %v: bracket of cell %d differs from the one-block cut", bs, masked, j)
+							t.Fatalf("blocks %v mask %d: bracket of cell %d differs from the one-block cut", bs, m, j)
 						}
 					}
 				}
@@ -189,5 +193,22 @@ func TestChordNarrowMax(t *testing.T) {
 	}
 	if lo, hi := chordBracket(0.9 * chordNarrowMax); !(hi-lo <= 2*BracketTol*lo) {
 		t.Fatalf("chord %.0f m: bracket [%v, %v] is not narrow", 0.9*chordNarrowMax, lo, hi)
+	}
+}
+
+// TestProjECEF checks projECEF against ecef (math.Hypot) at random points,
+// poles included: within 1e-8 m, far inside the chord bracket's 1 mm
+// margin.
+func TestProjECEF(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	for i := range 100000 {
+		lat, lon := 180*r.Float64()-90, 720*r.Float64()-360
+		if i%100 == 0 {
+			lat = math.Copysign(90, lat)
+		}
+		p, q := projECEF(lat, lon), ecef(lat, lon)
+		if d := dist3(p, q); !(d <= 1e-8) {
+			t.Fatalf("(%v, %v): projECEF %v, ecef %v, %v m apart", lat, lon, p, q, d)
+		}
 	}
 }

@@ -333,12 +333,12 @@ func (v *Virtual) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
 // they cannot be transformed): the cell positions of a Field.
 func CellCentres(g *extent.Grid) func(row, c0, c1 int, lons, lats []float64) {
 	return func(row, c0, c1 int, lons, lats []float64) {
-		xs := make([]float64, c1-c0)
-		ys := make([]float64, c1-c0)
+		// Converted in place, as Grid.RowLonLat does: no allocation.
+		lons, lats = lons[:c1-c0], lats[:c1-c0]
 		for c := c0; c < c1; c++ {
-			xs[c-c0], ys[c-c0] = g.Centre(c, row)
+			lons[c-c0], lats[c-c0] = g.Centre(c, row)
 		}
-		g.ToLonLat(xs, ys, lons[:c1-c0], lats[:c1-c0])
+		g.ToLonLat(lons, lats, lons, lats)
 	}
 }
 
