@@ -78,21 +78,19 @@ func validLonLat(lat, lon float64) bool {
 }
 
 // bracketProjected is Bracket on a Field made by New: the cell centres
-// come from its Centres (any grid), each cell is bracketed from its
-// shortest ECEF chord to a training site, and computed exactly where that
-// bracket is too wide or crosses a bin.
+// come from its Centres (any grid, one projection per cell), each cell is
+// bracketed from its shortest ECEF chord to a training site, then, where
+// that bracket is too wide, from an exact geodesic measured at the anchor
+// of its tile, and computed exactly where both fail. Every step depends on
+// the cell's centre, the sites and the anchor of its tile on a global
+// lattice, never on the block: a cell's bracket is the same however the
+// grid is cut.
 //
-// The bracket of cell p is chordBracket(D*), D* = min_k |P_p - P_k| over
-// every site k (P the ECEF positions, ecef); it is kept when hi - lo <= 2
-// BracketTol lo and -hi, -lo share their bins (sameBins), otherwise p gets
-// the exact distance, Index.Nearest's value bit for bit: the smallest
-// geodesy.Distance(lat_p, lon_p, site) (Nearest's argument order) over the
-// candidates below, taken in increasing order of chord until the chord's
-// lower bound (chordBracket) exceeds the smallest distance so far (such a
-// site and the later ones are farther).
-//
-// Candidates, as in Distances: the block is walked in tiles of 16 x 16
-// cells, split in four while a tile has no usable centre or more than
+// Chords. The bracket of cell p is chordBracket(D*), D* = min_k |P_p -
+// P_k| over every site k (P the ECEF positions, projECEF); it is kept when
+// hi - lo <= 2 BracketTol lo and -hi, -lo share their bins (sameBins). The
+// candidates are found as in Distances: the block is walked in tiles of 16
+// x 16 cells, split in four while a tile has no usable centre or more than
 // maxCandidates candidates, down to single cells (any number). For a tile
 // with centre c, rho the largest chordBracket upper end of the chords from
 // c to the tile's needed cells (so rho >= s(c, p), the geodesic, for each
@@ -105,8 +103,7 @@ func validLonLat(lat, lon float64) bool {
 // of c (Index.Within) hold, for every needed cell p of the tile:
 //
 //   - its geodesic nearest site s*: s(c, s*) <= s(c, p) + s(p, s_1) <=
-//     2 rho + d1 (triangle inequality, as in Distances), so the exact value
-//     is Nearest's;
+//     2 rho + d1 (triangle inequality, as in Distances);
 //   - when D* <= chordNarrowMax, a site q* with the shortest chord D*:
 //     D* <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1 (a chord is
 //     never longer than the geodesic), and chordBracket's upper end grows
@@ -115,19 +112,72 @@ func validLonLat(lat, lon float64) bool {
 // So the shortest chord over the candidates is D* itself (the minimum of
 // the same numbers, bit for bit) whenever D* <= chordNarrowMax, and above
 // it both D* and the candidates' minimum give a bracket that is not
-// narrow (see chordNarrowMax): the cell is computed exactly. A cell's
-// bracket therefore depends on its own centre and the sites alone, not on
-// the block or the tile it is computed in. The chords from a cell are
-// taken in increasing order of the site's chord cc from c, stopping once
-// cc - rho (a lower bound on the cell's chord, |P_p - P_c| <= rho) exceeds
-// the shortest so far by 1 m; sites that cannot give any cell of the tile
-// its shortest chord are left out first, as in the latitude-longitude
-// path's chords.
+// narrow (see chordNarrowMax). The chords from a cell are taken in
+// increasing order of the site's chord cc from c, stopping once cc - rho
+// (a lower bound on the cell's chord, |P_p - P_c| <= rho) exceeds the
+// shortest so far by 1 m; sites that cannot give any cell of the tile its
+// shortest chord are left out first, as in the latitude-longitude path's
+// chords. A bracket narrower than exactWidth floor bins that crosses a
+// bin edge is not narrowed further: the cell is computed exactly.
 //
-// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km,
-// 4 and 27 million cells) the chord brackets settle the cells within about
-// 700 km of a training point; the cells farther out cost one geodesic or a
-// few each (see README, Performance).
+// Anchors. The other cells whose chord bracket fails go to the anchor a of
+// their tile on the global lattice of 16 x 16 cells (rows and columns 16 i
+// to 16 i + 15 of the grid; a is its cell (16 i + 8, 16 j + 8), whose
+// centre Centres gives even outside the block). With t the geodesic from
+// a to the cell p (in [tl, th], the chordBracket of |P_p - P_a|) and u
+// its unit initial direction, the geodesic gamma(s) has gamma'' normal to
+// the ellipsoid with |gamma''| <= kappa (its normal curvature), and the
+// unit normal N turns at most at rate kappa along it (the shape operator's
+// norm is the largest principal curvature), so with Pi the projection onto
+// the tangent plane at a, |Pi gamma''(s)| <= kappa |N(gamma(s)) - N(a)| <=
+// kappa^2 s, and
+//
+//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi gamma''(s) ds| <= kappa^2 t^3 / 6 =: e1
+//
+// (4 mm at t = 10 km). For a site k with distance f = f_k(a) and azimuth
+// az at a (geodesy.Inverse), the gradient of f_k at a is -v, v = cos(az)
+// north + sin(az) east (the geodetic east and north at a), so t f'(0) =
+// <t u, -v> lies within e1 of tc = <Pi (P_p - P_a), -v>, computed from the
+// ECEF offset alone. Along gamma, f'' = h (1 - f'^2) with h between the
+// Hessian comparison bounds (see Bracket): f'' in [A, B] = [h_lo(f + th)
+// q1, q2 / (f - th)], q1 and q2 the extremes of 1 - f'^2 for f' in [cl,
+// ch + th B] ([cl, ch] the range of tc +- e1 over t in [tl, th]; f' only
+// grows since A >= 0), B first with q2 = 1, then twice from the previous
+// B; so
+//
+//	f_k(p) in [f + tc - e1 + A tl^2/2, f + tc + e1 + B th^2/2],
+//
+// widened by 1 mm + 1e-9 f (PROJ's 15 nm and the rounding of the
+// coordinates and azimuths) and intersected with the 1-Lipschitz bracket
+// [f - th, f + th] widened the same; a site with f <= 2 th or f + th >=
+// 6000 km (see maxTaylorDist) gets only the latter. The cell's bracket is
+// the minimum over the sites of both ends, intersected with its chord
+// bracket, kept under the same two conditions. Sites: those the index
+// lists within d1(a) + S of a, S = 2 T + 2 (1 mm + 1e-9 d1(a)) + 1 m, T the
+// largest th of the block's pending cells of the tile, measured in
+// increasing order of chord while the chord's lower bound is within S of
+// the smallest distance so far, and kept within S of it. A site k left out
+// has f_k(a) > d(a) + 2 th + its margins, d(a) the anchor's nearest
+// distance, so its lower end f_k(a) - th - margin lies above the upper end
+// d(a) + th + margin of the anchor's nearest site: it changes neither end
+// of the minimum, which is therefore the minimum over every site, however
+// large T (that is, the block) makes the list. The same sites hold every
+// pending cell's nearest site (f_{s*}(a) <= s(a, p) + s(p, s_1) <= d(a) +
+// 2 t).
+//
+// Exact cells get Index.Nearest's value bit for bit: the smallest
+// geodesy.Distance(lat_p, lon_p, site) (Nearest's argument order) over the
+// tile's candidates or the anchor's sites (both hold the nearest), taken
+// in increasing order of chord until the chord's lower bound (chordBracket)
+// exceeds the smallest distance so far (such a site and the later ones
+// are farther).
+//
+// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km, 4
+// million cells of 2.45 km) the chords settle the cells within about
+// 500 km of a training point (48% of them), the anchors all but 1.3% of
+// the others, which are computed exactly; the cost is then dominated by
+// Centres (PROJ), about two thirds of the bounds' CPU time (see README,
+// Performance).
 func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
 	sc := projPool.Get().(*projScratch)

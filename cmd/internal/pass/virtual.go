@@ -343,10 +343,12 @@ func CellCentres(g *extent.Grid) func(row, c0, c1 int, lons, lats []float64) {
 }
 
 // DistanceNull returns the distance-only null's field on g for the sites of
-// ix: on a latitude-longitude grid the one of nullmodel.NewLonLat, whose
-// bounds let a pass compute few cells exactly, otherwise nullmodel.New on
-// the cell centres transformed to WGS84 (every cell exact). Both give the
-// same values.
+// ix: on a latitude-longitude grid the one of nullmodel.NewLonLat,
+// otherwise nullmodel.New on the cell centres transformed to WGS84
+// (CellCentres: PROJ, one transform per cell, which is most of its cost).
+// The bounds of both let a pass compute few cells exactly (on
+// BenchmarkNullVsRaster's study 1.3% on an EPSG:3035 grid), and both give
+// the same values.
 func DistanceNull(g *extent.Grid, ix *geodesy.Index) *nullmodel.Field {
 	if g.Geographic {
 		gt := g.GeoTransform
