@@ -269,7 +269,9 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 	clat, clon := b.centre((r0+r1)/2, (c0+c1)/2)
 	if validLonLat(clat, clon) {
 		pc := projECEF(clat, clon)
-		rho := 0.0
+		// chordBracket's upper end grows with the chord: that of the
+		// longest chord bounds every cell's geodesic from c.
+		d2 := 0.0
 		for r := r0; r < r1; r++ {
 			for c := c0; c < c1; c++ {
 				i := r*b.w + c
@@ -277,10 +279,10 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 					continue
 				}
 				dx, dy, dz := b.ex[i]-pc[0], b.ey[i]-pc[1], b.ez[i]-pc[2]
-				_, hs := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
-				rho = max(rho, hs)
+				d2 = max(d2, dx*dx+dy*dy+dz*dz)
 			}
 		}
+		_, rho := chordBracket(math.Sqrt(d2))
 		if !math.IsInf(rho, 1) {
 			ix := b.f.ix
 			_, d1 := ix.NearestBounds(clat, clon, 0)
@@ -443,7 +445,8 @@ func (b *projBracketer) anchored(tr, tc int) {
 	}
 	pa := projECEF(alat, alon)
 	// The largest upper bound on a pending cell's geodesic from the anchor.
-	tmax := 0.0
+	// (Cells beyond maxChord, with no upper end, are computed exactly.)
+	d2 := 0.0
 	for r := r0; r < r1; r++ {
 		for c := c0; c < c1; c++ {
 			i := r*b.w + c
@@ -451,11 +454,12 @@ func (b *projBracketer) anchored(tr, tc int) {
 				continue
 			}
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
-			if _, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz)); !math.IsInf(th, 1) {
-				tmax = max(tmax, th)
+			if e := dx*dx + dy*dy + dz*dz; e <= maxChord*maxChord {
+				d2 = max(d2, e)
 			}
 		}
 	}
+	_, tmax := chordBracket(math.Sqrt(d2))
 	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
 	b.taylorCells(r0, r1, c0, c1, alat, alon, pa)
 }
