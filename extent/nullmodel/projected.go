@@ -125,25 +125,25 @@ func validLonLat(lat, lon float64) bool {
 // to 16 i + 15 of the grid; a is its cell (16 i + 8, 16 j + 8), whose
 // centre Centres gives even outside the block). With t the geodesic from
 // a to the cell p (in [tl, th], the chordBracket of |P_p - P_a|) and u
-// its unit initial direction, the geodesic gamma(s) has gamma” normal to
-// the ellipsoid with |gamma”| <= kappa (its normal curvature), and the
-// unit normal N turns at most at rate kappa along it (the shape operator's
-// norm is the largest principal curvature), so with Pi the projection onto
-// the tangent plane at a, |Pi gamma”(s)| <= kappa |N(gamma(s)) - N(a)| <=
-// kappa^2 s, and
+// its unit initial direction, the geodesic gamma(s) has its acceleration
+// g(s) normal to the ellipsoid with |g| <= kappa (its normal curvature),
+// and the unit normal N turns at most at rate kappa along it (the shape
+// operator's norm is the largest principal curvature), so with Pi the
+// projection onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s))
+// - N(a)| <= kappa^2 s, and
 //
-//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi gamma''(s) ds| <= kappa^2 t^3 / 6 =: e1
+//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6 =: e1
 //
 // (4 mm at t = 10 km). For a site k with distance f = f_k(a) and azimuth
 // az at a (geodesy.Inverse), the gradient of f_k at a is -v, v = cos(az)
 // north + sin(az) east (the geodetic east and north at a), so t f'(0) =
 // <t u, -v> lies within e1 of tc = <Pi (P_p - P_a), -v>, computed from the
-// ECEF offset alone. Along gamma, f” = h (1 - f'^2) with h between the
-// Hessian comparison bounds (see Bracket): f” in [A, B] = [h_lo(f + th)
-// q1, q2 / (f - th)], q1 and q2 the extremes of 1 - f'^2 for f' in [cl,
-// ch + th B] ([cl, ch] the range of tc +- e1 over t in [tl, th]; f' only
-// grows since A >= 0), B first with q2 = 1, then twice from the previous
-// B; so
+// ECEF offset alone. Along gamma, the second derivative of f is h (1 -
+// f'^2), h between the Hessian comparison bounds (see Bracket), so it lies
+// in [A, B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of
+// 1 - f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over
+// t in [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then
+// twice from the previous B; so
 //
 //	f_k(p) in [f + tc - e1 + A tl^2/2, f + tc + e1 + B th^2/2],
 //
