@@ -550,7 +550,9 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
 			tl, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
 			if math.IsInf(th, 1) {
-				d := b.exact(i, sc.asites)
+				// Beyond maxChord from the anchor (huge cells): not within
+				// T of it, so the anchor's sites need not hold its nearest.
+				_, d := b.f.ix.Nearest(b.lats[i], b.lons[i], 0)
 				b.lo[i], b.hi[i] = d, d
 				continue
 			}

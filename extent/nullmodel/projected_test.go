@@ -57,7 +57,8 @@ func polarGrid(x0, y0, cell, lon0 float64) Centres {
 // path) against Distances and Index.Nearest on grids whose tiles are not
 // latitude-longitude rectangles: Lambert azimuthal equal-area with 2 km and
 // 50 km cells, one whose corner lies beyond the projection's domain (cells
-// with no position), and a polar stereographic grid around the pole. Every
+// with no position), and polar stereographic grids around the pole, with
+// 25 km cells and with 1000 km cells (tiles wider than maxChord). Every
 // bracket holds the exact distance, shares its bins at both ends and is
 // within 2 BracketTol; a degenerate bracket equals Nearest at the cell
 // centre bit for bit; cells with no position and cells not needed are NaN;
@@ -77,6 +78,9 @@ func TestBracketProjected(t *testing.T) {
 		{"laea-50km", laeaGrid(-3000e3, 2200e3, 50000, 52, 10), 120, 90, 0, 45, 20, 58, 40, 0.1},
 		{"laea-edge", laeaGrid(11.5e6, 3.0e6, 40000, 52, 10), 80, 150, 150, -70, 175, -40, 10, 0},
 		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3},
+		// Cells of 1000 km on a map of nearly the whole sphere: tiles
+		// wider than maxChord.
+		{"polar-1000km", polarGrid(-12e6, 12e6, 1000e3, 0), 24, 24, -180, -60, 180, 80, 20, 0},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
