@@ -10,7 +10,9 @@ import (
 	"syscall"
 	"testing"
 
+	"areasweep/extent"
 	"areasweep/extent/nullmodel"
+	"areasweep/metrics"
 )
 
 // cpuNow returns the process's user plus system CPU time in nanoseconds.
@@ -106,11 +108,18 @@ func BenchmarkNullBounds(b *testing.B) {
 }
 
 // BenchmarkNullBoundsProjected is BenchmarkNullBounds on the study's
-// EPSG:3035 grid of 4 million cells (nullBenchStudyOn): CPU ns per cell,
-// the same for the cell centres alone (CellCentres, PROJ), and the share
-// of cells computed exactly (lo == hi).
+// EPSG:3035 grid (nullBenchStudyOn) of 4 and 27 million cells: CPU ns per
+// cell, the same for the cell centres alone (CellCentres, PROJ), and the
+// share of cells computed exactly (lo == hi).
 func BenchmarkNullBoundsProjected(b *testing.B) {
-	g, v, layout, _ := nullBenchStudyOn(b, 4e6, "EPSG:3035")
+	for _, cells := range []float64{4e6, 27e6} {
+		g, v, layout, _ := nullBenchStudyOn(b, cells, "EPSG:3035")
+		b.Run(fmt.Sprintf("cells=%d", g.Cells()), func(b *testing.B) { boundsProjected(b, g, v, layout) })
+		g.Close()
+	}
+}
+
+func boundsProjected(b *testing.B, g *extent.Grid, v *Virtual, layout *metrics.Layout) {
 	bf := v.field.(BoundedField)
 	fb := newFloorBinner(layout)
 	lo := make([]float64, VirtualBlock*VirtualBlock)
@@ -150,5 +159,4 @@ func BenchmarkNullBoundsProjected(b *testing.B) {
 	b.ReportMetric(float64(cpu)/n, "cpu-ns/cell")
 	b.ReportMetric(float64(cenCPU)/n, "centres-cpu-ns/cell")
 	b.ReportMetric(float64(exact)/float64(g.Width*g.Height), "exact-share")
-	g.Close()
 }
