@@ -178,9 +178,8 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // position, and cells not needed, get NaN. A cell's bracket does not
 // depend on the block it is computed in.
 //
-// A Field made by New (any grid) brackets each cell from chords, then from
-// anchors on a global lattice of 16 x 16 cells (bracketProjected). One
-// made by NewLonLat first brackets each cell from chords. On a global lattice of
+// A Field made by New brackets its cells as bracketProjected says. One made by
+// NewLonLat first brackets each cell from chords. On a global lattice of
 // super-tiles of 15 x 15 cells, with rho >= 1.02 times the longest
 // geodesic from the super-tile's centre to its cells plus 1 m (from the
 // row's stencil, below) and d1 an upper bound on the centre's distance to
