@@ -178,7 +178,7 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // position, and cells not needed, get NaN. A cell's bracket does not
 // depend on the block it is computed in.
 //
-// A Field made by New computes every cell exactly (lo = hi). One made by
+// A Field made by New brackets its cells as bracketProjected says. One made by
 // NewLonLat first brackets each cell from chords. On a global lattice of
 // super-tiles of 15 x 15 cells, with rho >= 1.02 times the longest
 // geodesic from the super-tile's centre to its cells plus 1 m (from the
@@ -265,8 +265,7 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
 	if f.ll == nil {
-		f.Distances(x0, y0, w, h, need, lo)
-		copy(hi[:n], lo[:n])
+		f.bracketProjected(x0, y0, w, h, need, bins, lo, hi)
 		return
 	}
 	for i := range n {

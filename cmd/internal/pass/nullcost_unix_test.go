@@ -6,10 +6,13 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 
+	"areasweep/extent"
 	"areasweep/extent/nullmodel"
+	"areasweep/metrics"
 )
 
 // cpuNow returns the process's user plus system CPU time in nanoseconds.
@@ -29,6 +32,9 @@ func cpuNow(tb testing.TB) int64 {
 // with 2 workers and the same 8 extents, and reports each one's process
 // CPU time (user + system, from getrusage) per cell and their ratio, so
 // that other load on the machine does not enter the comparison.
+//
+// The projected case (crs=EPSG:3035) is the same study on a Lambert
+// azimuthal equal-area grid (nullBenchStudyOn), against the same raster.
 func BenchmarkNullVsRaster(b *testing.B) {
 	for _, cells := range []float64{4e6, 27e6} {
 		h := int(math.Round(math.Sqrt(cells / 1.5)))
@@ -41,31 +47,37 @@ func BenchmarkNullVsRaster(b *testing.B) {
 		rg, r := openPath(b, path)
 		rfam := fullFamily(rg, 8)
 		rlayout := mustLayout(b, 0, 1)
-		g, v, layout, fam := nullBenchStudy(b, cells)
-		b.Run(fmt.Sprintf("cells=%d,extents=8,workers=2", w*h), func(b *testing.B) {
-			var rasterCPU, nullCPU int64
-			for b.Loop() {
-				t0 := cpuNow(b)
-				if _, _, err := r.Score(rg, rfam, rlayout, Options{Workers: 2}); err != nil {
-					b.Fatal(err)
-				}
-				t1 := cpuNow(b)
-				var bg nullmodel.Background
-				if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: NullTally(fam, &bg)}); err != nil {
-					b.Fatal(err)
-				}
-				t2 := cpuNow(b)
-				rasterCPU += t1 - t0
-				nullCPU += t2 - t1
+		for _, crs := range []string{"EPSG:4326", "EPSG:3035"} {
+			g, v, layout, fam := nullBenchStudyOn(b, cells, crs)
+			name := fmt.Sprintf("cells=%d,extents=8,workers=2", w*h)
+			if crs != "EPSG:4326" {
+				name = fmt.Sprintf("crs=%s,cells=%d,extents=8,workers=2", strings.TrimPrefix(crs, "EPSG:"), w*h)
 			}
-			n := float64(b.N) * float64(w*h)
-			b.ReportMetric(float64(rasterCPU)/n, "raster-cpu-ns/cell")
-			b.ReportMetric(float64(nullCPU)/n, "null-cpu-ns/cell")
-			b.ReportMetric(float64(nullCPU)/float64(rasterCPU), "null/raster")
-		})
+			b.Run(name, func(b *testing.B) {
+				var rasterCPU, nullCPU int64
+				for b.Loop() {
+					t0 := cpuNow(b)
+					if _, _, err := r.Score(rg, rfam, rlayout, Options{Workers: 2}); err != nil {
+						b.Fatal(err)
+					}
+					t1 := cpuNow(b)
+					var bg nullmodel.Background
+					if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: NullTally(fam, &bg)}); err != nil {
+						b.Fatal(err)
+					}
+					t2 := cpuNow(b)
+					rasterCPU += t1 - t0
+					nullCPU += t2 - t1
+				}
+				n := float64(b.N) * float64(w*h)
+				b.ReportMetric(float64(rasterCPU)/n, "raster-cpu-ns/cell")
+				b.ReportMetric(float64(nullCPU)/n, "null-cpu-ns/cell")
+				b.ReportMetric(float64(nullCPU)/float64(rasterCPU), "null/raster")
+			})
+			g.Close()
+		}
 		r.Close()
 		rg.Close()
-		g.Close()
 	}
 }
 
@@ -93,4 +105,58 @@ func BenchmarkNullBounds(b *testing.B) {
 	}
 	b.ReportMetric(float64(cpu)/float64(b.N)/float64(g.Width*g.Height), "cpu-ns/cell")
 	g.Close()
+}
+
+// BenchmarkNullBoundsProjected is BenchmarkNullBounds on the study's
+// EPSG:3035 grid (nullBenchStudyOn) of 4 and 27 million cells: CPU ns per
+// cell, the same for the cell centres alone (CellCentres, PROJ), and the
+// share of cells computed exactly (lo == hi).
+func BenchmarkNullBoundsProjected(b *testing.B) {
+	for _, cells := range []float64{4e6, 27e6} {
+		g, v, layout, _ := nullBenchStudyOn(b, cells, "EPSG:3035")
+		b.Run(fmt.Sprintf("cells=%d", g.Cells()), func(b *testing.B) { boundsProjected(b, g, v, layout) })
+		g.Close()
+	}
+}
+
+func boundsProjected(b *testing.B, g *extent.Grid, v *Virtual, layout *metrics.Layout) {
+	bf := v.field.(BoundedField)
+	fb := newFloorBinner(layout)
+	lo := make([]float64, VirtualBlock*VirtualBlock)
+	hi := make([]float64, VirtualBlock*VirtualBlock)
+	lons := make([]float64, VirtualBlock)
+	lats := make([]float64, VirtualBlock)
+	cen := CellCentres(g)
+	var cpu, cenCPU int64
+	exact := 0
+	for b.Loop() {
+		exact = 0
+		t0 := cpuNow(b)
+		for y0 := 0; y0 < g.Height; y0 += VirtualBlock {
+			for x0 := 0; x0 < g.Width; x0 += VirtualBlock {
+				w, h := min(VirtualBlock, g.Width-x0), min(VirtualBlock, g.Height-y0)
+				bf.Bounds(x0, y0, w, h, nil, fb, lo, hi)
+				for i := range w * h {
+					if lo[i] == hi[i] {
+						exact++
+					}
+				}
+			}
+		}
+		t1 := cpuNow(b)
+		for y0 := 0; y0 < g.Height; y0 += VirtualBlock {
+			for x0 := 0; x0 < g.Width; x0 += VirtualBlock {
+				w, h := min(VirtualBlock, g.Width-x0), min(VirtualBlock, g.Height-y0)
+				for y := range h {
+					cen(y0+y, x0, x0+w, lons, lats)
+				}
+			}
+		}
+		cpu += t1 - t0
+		cenCPU += cpuNow(b) - t1
+	}
+	n := float64(b.N) * float64(g.Width*g.Height)
+	b.ReportMetric(float64(cpu)/n, "cpu-ns/cell")
+	b.ReportMetric(float64(cenCPU)/n, "centres-cpu-ns/cell")
+	b.ReportMetric(float64(exact)/float64(g.Width*g.Height), "exact-share")
 }

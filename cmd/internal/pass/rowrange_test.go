@@ -48,7 +48,8 @@ func scoreRows(t *testing.T, g *extent.Grid, fam *extent.Family, layout *metrics
 // valid bits, the preview and the rows seen with their values bit for bit
 // (the null's bounded values: a range's blocks must pick the same cells
 // to compute exactly as the whole pass's, for the sorting-bias tally), for a raster (256 x 256
-// tiles) and the virtual null, with 1 and 2 workers. An empty range scores
+// tiles) and the virtual null (on a layout without and with a histogram
+// floor, and on a projected grid), with 1 and 2 workers. An empty range scores
 // nothing, and a range past the grid is cut to it.
 func TestRowRangesAddUp(t *testing.T) {
 	g, v, _, fam := nullSetup(t)
@@ -62,16 +63,31 @@ func TestRowRangesAddUp(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// With a histogram floor: the bounded path (midpoints, cells computed
+	// exactly per block), on this grid and on a projected one; bins of 64
+	// m (floored at 4e5/4096), narrow enough that on the projected grid
+	// some chord brackets fail and go to their tile's anchor.
+	flooredLayout, err := metrics.NewLayout([]float64{-1e4, -5e4}, 4096, metrics.WithHistFloor(metrics.FloorExp(4e5/4096)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	pg, pv, _, pfam := nullSetupProjected(t)
 	sources := []struct {
 		name   string
+		g      *extent.Grid
+		fam    *extent.Family
 		layout *metrics.Layout
 		score  func(*extent.Grid, *extent.Family, *metrics.Layout, Options) ([]*metrics.Accumulator, Stats, error)
-	}{{"raster", rasterLayout, r.Score}, {"virtual", nullLayout, v.Score}}
+	}{
+		{"raster", g, fam, rasterLayout, r.Score}, {"virtual", g, fam, nullLayout, v.Score},
+		{"virtual-floored", g, fam, flooredLayout, v.Score}, {"virtual-laea-floored", pg, pfam, flooredLayout, pv.Score},
+	}
 	cuts := [][]RowRange{
 		{{0, 37}, {37, 111}, {111, 200}},
 		{{150, 400}, {0, 1}, {1, 150}, {60, 60}},
 	}
 	for _, src := range sources {
+		g, fam := src.g, src.fam
 		whole := scoreRows(t, g, fam, src.layout, 2, nil, src.score)
 		for ci, ranges := range cuts {
 			for _, workers := range []int{1, 2} {

@@ -333,20 +333,22 @@ func (v *Virtual) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
 // they cannot be transformed): the cell positions of a Field.
 func CellCentres(g *extent.Grid) func(row, c0, c1 int, lons, lats []float64) {
 	return func(row, c0, c1 int, lons, lats []float64) {
-		xs := make([]float64, c1-c0)
-		ys := make([]float64, c1-c0)
+		// Converted in place, as Grid.RowLonLat does: no allocation.
+		lons, lats = lons[:c1-c0], lats[:c1-c0]
 		for c := c0; c < c1; c++ {
-			xs[c-c0], ys[c-c0] = g.Centre(c, row)
+			lons[c-c0], lats[c-c0] = g.Centre(c, row)
 		}
-		g.ToLonLat(xs, ys, lons[:c1-c0], lats[:c1-c0])
+		g.ToLonLat(lons, lats, lons, lats)
 	}
 }
 
 // DistanceNull returns the distance-only null's field on g for the sites of
-// ix: on a latitude-longitude grid the one of nullmodel.NewLonLat, whose
-// bounds let a pass compute few cells exactly, otherwise nullmodel.New on
-// the cell centres transformed to WGS84 (every cell exact). Both give the
-// same values.
+// ix: on a latitude-longitude grid the one of nullmodel.NewLonLat,
+// otherwise nullmodel.New on the cell centres transformed to WGS84
+// (CellCentres: PROJ, one transform per cell, which is most of its cost).
+// The bounds of both let a pass compute few cells exactly (on
+// BenchmarkNullVsRaster's study 1.3% on an EPSG:3035 grid), and both give
+// the same values.
 func DistanceNull(g *extent.Grid, ix *geodesy.Index) *nullmodel.Field {
 	if g.Geographic {
 		gt := g.GeoTransform

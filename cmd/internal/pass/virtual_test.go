@@ -46,6 +46,38 @@ func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.
 	return g, NewVirtual(g, f), f, fam
 }
 
+// nullSetupProjected is nullSetup on a projected grid: 300 x 200 cells of
+// 2 km in EPSG:3035 (Lambert azimuthal equal-area Europe, around 13 E, 48
+// N), five training sites inside it, the same two-member family.
+func nullSetupProjected(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+	t.Helper()
+	g, err := extent.NewGrid(300, 200, [6]float64{4.5e6, 2000, 0, 2.9e6, 0, -2000}, "EPSG:3035")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(g.Close)
+	xs := []float64{4.55e6, 4.62e6, 4.75e6, 4.9e6, 5.02e6}
+	ys := []float64{2.85e6, 2.6e6, 2.75e6, 2.55e6, 2.82e6}
+	lons, lats := make([]float64, 5), make([]float64, 5)
+	g.ToLonLat(xs, ys, lons, lats)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := DistanceNull(g, ix)
+	mask := make([]uint64, g.Cells())
+	for i := range mask {
+		if i%97 != 0 {
+			mask[i] = 1
+			if i%g.Width < g.Width/2 {
+				mask[i] |= 2
+			}
+		}
+	}
+	fam := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
+	return g, NewVirtual(g, f), f, fam
+}
+
 // maskFamily makes a family on g from per-cell membership words (bit k:
 // member k), as row runs.
 func maskFamily(g *extent.Grid, members []extent.Member, mask []uint64) *extent.Family {
@@ -69,8 +101,7 @@ func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
 		t.Fatal(err)
 	}
 	ds.SetGeoTransform(g.GeoTransform)
-	sr, _ := godal.NewSpatialRefFromEPSG(4326)
-	ds.SetSpatialRef(sr)
+	ds.SetSpatialRef(g.SpatialRef())
 	b := ds.Bands()[0]
 	b.SetNoData(-1e300)
 	out := make([]float64, len(vals))
@@ -94,9 +125,18 @@ func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
 // bit for bit, and every accumulator: area at each layout value, range,
 // cells, area, and all metrics, the Boyce index included), for 1 and 2
 // workers, although the GeoTIFF's blocks (64 x 64) differ from the
-// virtual's (240 x 240).
+// virtual's (240 x 240); on a latitude-longitude grid (nullSetup) and on a
+// projected one (nullSetupProjected).
 func TestVirtualEqualsRaster(t *testing.T) {
-	g, v, f, fam := nullSetup(t)
+	for name, setup := range map[string]func(*testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family){
+		"lonlat": nullSetup, "laea": nullSetupProjected,
+	} {
+		t.Run(name, func(t *testing.T) { virtualEqualsRaster(t, setup) })
+	}
+}
+
+func virtualEqualsRaster(t *testing.T, setup func(*testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family)) {
+	g, v, f, fam := setup(t)
 	all := make([]float64, g.Cells())
 	f.Fill(0, 0, g.Width, g.Height, nil, all)
 	path := filepath.Join(t.TempDir(), "null.tif")
@@ -119,6 +159,11 @@ func TestVirtualEqualsRaster(t *testing.T) {
 	}
 	// The floor of bins about 4e5/256 m wide (the largest distance is below
 	// 4e5 m): the histogram edges the bounds must avoid.
+	for i, x := range all {
+		if !(x > -4e5) {
+			t.Fatalf("cell %d: null %v, want above -4e5 (finite)", i, x)
+		}
+	}
 	layout, err := metrics.NewLayout(append(append([]float64{}, vv...), -5e4), 256, metrics.WithHistFloor(metrics.FloorExp(4e5/256)))
 	if err != nil {
 		t.Fatal(err)
@@ -271,9 +316,22 @@ func BenchmarkNullPass(b *testing.B) {
 // about cells cells (see BenchmarkNullPass): the grid (to be closed), the
 // virtual null, its layout and a family of 8 extents covering the grid.
 func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
+	return nullBenchStudyOn(b, cells, "EPSG:4326")
+}
+
+// nullBenchStudyOn is nullBenchStudy on a grid in crs: EPSG:4326 (the 60 x
+// 40 degree window), or EPSG:3035 (Lambert azimuthal equal-area Europe): a
+// window of 6000 x 4000 km centred near 10 E, 50 N (x from 1320 to 7320 km,
+// y from 990 to 4990 km), the same shape in cells, with the same training
+// points (those outside the window are left out of the layout).
+func nullBenchStudyOn(b *testing.B, cells float64, crs string) (*extent.Grid, *Virtual, *metrics.Layout, *extent.Family) {
 	h := int(math.Round(math.Sqrt(cells / 1.5)))
 	w := int(math.Round(float64(h) * 1.5))
-	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
+	gt := [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}
+	if crs == "EPSG:3035" {
+		gt = [6]float64{1.32e6, 6e6 / float64(w), 0, 4.99e6, 0, -4e6 / float64(h)}
+	}
+	g, err := extent.NewGrid(w, h, gt, crs)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -294,9 +352,12 @@ func nullBenchStudy(b *testing.B, cells float64) (*extent.Grid, *Virtual, *metri
 	f := DistanceNull(g, ix)
 	v := NewVirtual(g, f)
 	var pc []int
+	xs, ys := make([]float64, len(plats)), make([]float64, len(plats))
+	g.FromLonLat(plons, plats, xs, ys)
 	for i := range plats {
-		c, row, _ := g.CellOf(plons[i], plats[i])
-		pc = append(pc, row*w+c)
+		if c, row, ok := g.CellOf(xs[i], ys[i]); ok {
+			pc = append(pc, row*w+c)
+		}
 	}
 	vals, _, _ := v.Sample(g, pc)
 	layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(f, g, 4096)))
@@ -325,7 +386,8 @@ func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
 // the same way), bit for bit, on projected grids where the tiles are not
 // latitude-longitude rectangles: Lambert azimuthal equal-area over Europe
 // with 2 km and 50 km cells, and a polar stereographic grid with 25 km cells
-// whose scale changes across a tile.
+// whose scale changes across a tile; and the pass's bounds of the null
+// (Field.Bounds) against those distances.
 func TestVirtualProjectedMatchesNearest(t *testing.T) {
 	cases := []struct {
 		name string
@@ -384,6 +446,65 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 			}
 			if bad > 0 {
 				t.Errorf("%d of %d cells differ", bad, g.Cells())
+			}
+			// The bounds of the pass (Field.Bounds on the null's layout):
+			// each holds minus Nearest's distance, shares its bins at both
+			// ends, is Nearest's value bit for bit where degenerate, and is
+			// the same for blocks cut in two ways.
+			var vals []float64
+			for i := 0; i < len(got); i += 37 {
+				vals = append(vals, 0-got[i])
+			}
+			layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(f, g, 4096)))
+			if err != nil {
+				t.Fatal(err)
+			}
+			fb := newFloorBinner(layout)
+			var ref []float64
+			for _, bs := range [][2]int{{64, 64}, {45, 30}} {
+				lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
+				blo, bhi := make([]float64, bs[0]*bs[1]), make([]float64, bs[0]*bs[1])
+				for y0 := 0; y0 < g.Height; y0 += bs[1] {
+					for x0 := 0; x0 < g.Width; x0 += bs[0] {
+						w, h := min(bs[0], g.Width-x0), min(bs[1], g.Height-y0)
+						f.Bounds(x0, y0, w, h, nil, fb, blo, bhi)
+						for y := range h {
+							copy(lo[(y0+y)*g.Width+x0:], blo[y*w:(y+1)*w])
+							copy(hi[(y0+y)*g.Width+x0:], bhi[y*w:(y+1)*w])
+						}
+					}
+				}
+				exact := 0
+				for i, d := range got {
+					v := 0 - d
+					ok := lo[i] <= v && v <= hi[i] && layout.Locate(lo[i]) == layout.Locate(hi[i]) && layout.FloorBin(lo[i]) == layout.FloorBin(hi[i])
+					if lo[i] == hi[i] {
+						ok = lo[i] == v
+						exact++
+					}
+					if math.IsNaN(d) {
+						ok = math.IsNaN(lo[i]) && math.IsNaN(hi[i])
+					}
+					if !ok {
+						t.Fatalf("blocks %v cell %d: bounds [%.9f, %.9f], value %.9f", bs, i, lo[i], hi[i], v)
+					}
+				}
+				t.Logf("blocks %v: %d of %d cells exact", bs, exact, g.Cells())
+				// Coarse cells (25 and 50 km) put the anchors' cells far
+				// apart, so fewer are bounded; a fifth must be.
+				if exact > g.Cells()*4/5 {
+					t.Errorf("blocks %v: %d of %d cells exact, want a fifth bounded", bs, exact, g.Cells())
+				}
+				key := append(lo, hi...)
+				if ref == nil {
+					ref = key
+					continue
+				}
+				for i := range key {
+					if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
+						t.Fatalf("blocks %v: bounds of cell %d differ from blocks of 64", bs, i%g.Cells())
+					}
+				}
 			}
 		})
 	}

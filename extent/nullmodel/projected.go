@@ -1,0 +1,645 @@
+package nullmodel
+
+import (
+	"math"
+	"sync"
+
+	"areasweep/extent/geodesy"
+)
+
+// chordNarrowMax is a chord (m) from which on no chord bracket is narrow
+// enough to keep: for D >= chordNarrowMax, chordBracket(D) has hi >= D (1 +
+// u/6) and lo <= D, so
+//
+//	(hi - lo)/lo >= u/6 = (kappa D/2)^2/6 >= (kappa 1.5e6/2)^2/6 = 2.34e-3 > 2 BracketTol,
+//
+// u growing with D (and no upper end at all beyond maxChord). Such a cell
+// is computed exactly whatever its shortest chord, so the projected path
+// only needs the shortest chord where it is below chordNarrowMax.
+const chordNarrowMax = 1.5e6
+
+// projSite is a candidate site of a tile of the projected path: its ECEF
+// position, its chord from the tile's centre, and its coordinates.
+type projSite struct {
+	p        [3]float64
+	cc       float64
+	lat, lon float64
+}
+
+// projScratch holds one projected Bracket call's buffers.
+type projScratch struct {
+	lons, lats []float64
+	ex, ey, ez []float64 // ECEF of the needed cells with a position (ex NaN: not bracketed)
+	cands      []int
+	sites      []projSite // the tile's candidates by chord from its centre
+	near       []projSite // those that can give a cell its shortest chord
+	order      []projOrder
+	fetchA     []int // per block row: the columns [fetchA, fetchZ) have their centres
+	fetchZ     []int
+	clo, chi   []float64 // the chord bracket of the cells left to the anchors
+	pend       []bool    // per block cell: left to the anchors
+	anchor     []projAnchor
+	asites     []projSite // the anchor's measured sites, for exact cells
+}
+
+// projAnchor is a site measured at a tile's anchor: its exact distance
+// and the sine and cosine of the azimuth towards it there.
+type projAnchor struct {
+	f0, sz, cz float64
+	site       projSite
+}
+
+// projOrder is a candidate site of a cell computed exactly, with its
+// chord from the cell.
+type projOrder struct {
+	d float64
+	q int
+}
+
+var projPool = sync.Pool{New: func() any { return new(projScratch) }}
+
+// projBracketer is the state of one Bracket call on a Field made by New.
+type projBracketer struct {
+	f          *Field
+	x0, y0     int
+	w, h       int
+	lons, lats []float64
+	ex, ey, ez []float64
+	lo, hi     []float64
+	sc         *projScratch
+	bins       bracketer // only its bins: sameBins
+}
+
+// validLonLat reports whether Index.Nearest measures a point at (lat,
+// lon): it gives NaN for a latitude outside [-90, 90] or a non-finite
+// longitude.
+func validLonLat(lat, lon float64) bool {
+	return math.Abs(lat) <= 90 && !math.IsInf(lon, 0) && !math.IsNaN(lon)
+}
+
+// bracketProjected is Bracket on a Field made by New: the cell centres
+// come from its Centres (any grid, one projection per cell), each cell is
+// bracketed from its shortest ECEF chord to a training site, then, where
+// that bracket is too wide, from an exact geodesic measured at the anchor
+// of its tile, and computed exactly where both fail. Every step depends on
+// the cell's centre, the sites and the anchor of its tile on a global
+// lattice, never on the block: a cell's bracket is the same however the
+// grid is cut.
+//
+// Chords. The bracket of cell p is chordBracket(D*), D* = min_k |P_p -
+// P_k| over every site k (P the ECEF positions, projECEF); it is kept when
+// hi - lo <= 2 BracketTol lo and -hi, -lo share their bins (sameBins). The
+// candidates are found as in Distances: the block is walked in tiles of 16
+// x 16 cells, split in four while a tile has no usable centre or more than
+// maxCandidates candidates, down to single cells (any number). For a tile
+// with centre c, rho the largest chordBracket upper end of the chords from
+// c to the tile's needed cells (so rho >= s(c, p), the geodesic, for each
+// of them; Schur's bound, see Bracket) and d1 >= s(c, s_1) the upper end
+// of Index.NearestBounds at c (no geodesic), the sites the index lists
+// within
+//
+//	R = rho + max(d1 + rho, H),  H = chordBracket(min(d1 + rho, chordNarrowMax)) upper end,
+//
+// of c (Index.Within) hold, for every needed cell p of the tile:
+//
+//   - its geodesic nearest site s*: s(c, s*) <= s(c, p) + s(p, s_1) <=
+//     2 rho + d1 (triangle inequality, as in Distances);
+//   - when D* <= chordNarrowMax, a site q* with the shortest chord D*:
+//     D* <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1 (a chord is
+//     never longer than the geodesic), and chordBracket's upper end grows
+//     with the chord, so s(p, q*) <= H and s(c, q*) <= rho + H.
+//
+// So the shortest chord over the candidates is D* itself (the minimum of
+// the same numbers, bit for bit) whenever D* <= chordNarrowMax, and above
+// it both D* and the candidates' minimum give a bracket that is not
+// narrow (see chordNarrowMax). The chords from a cell are taken in
+// increasing order of the site's chord cc from c, stopping once cc - rho
+// (a lower bound on the cell's chord, |P_p - P_c| <= rho) exceeds the
+// shortest so far by 1 m; sites that cannot give any cell of the tile its
+// shortest chord are left out first, as in the latitude-longitude path's
+// chords. A bracket narrower than exactWidth floor bins that crosses a
+// bin edge is not narrowed further: the cell is computed exactly.
+//
+// Anchors. The other cells whose chord bracket fails go to the anchor a of
+// their tile on the global lattice of 16 x 16 cells (rows and columns 16 i
+// to 16 i + 15 of the grid; a is its cell (16 i + 8, 16 j + 8), whose
+// centre Centres gives even outside the block). With t the geodesic from
+// a to the cell p (in [tl, th], the chordBracket of |P_p - P_a|) and u
+// its unit initial direction, the geodesic gamma(s) has its acceleration
+// g(s) normal to the ellipsoid with |g| <= kappa (its normal curvature),
+// and the unit normal N turns at most at rate kappa along it (the shape
+// operator's norm is the largest principal curvature), so with Pi the
+// projection onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s))
+// - N(a)| <= kappa^2 s, and
+//
+//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6 =: e1
+//
+// (4 mm at t = 10 km). For a site k with distance f = f_k(a) and azimuth
+// az at a (geodesy.Inverse), the gradient of f_k at a is -v, v = cos(az)
+// north + sin(az) east (the geodetic east and north at a), so t f'(0) =
+// <t u, -v> lies within e1 of tc = <Pi (P_p - P_a), -v>, computed from the
+// ECEF offset alone. Along gamma, the second derivative of f is h (1 -
+// f'^2), h between the Hessian comparison bounds (see Bracket), so it lies
+// in [A, B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of
+// 1 - f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over
+// t in [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then
+// twice from the previous B; so
+//
+//	f_k(p) in [f + tc - e1 + A tl^2/2, f + tc + e1 + B th^2/2],
+//
+// widened by 1 mm + 1e-9 f (PROJ's 15 nm and the rounding of the
+// coordinates and azimuths) and intersected with the 1-Lipschitz bracket
+// [f - th, f + th] widened the same; a site with f <= 2 th or f + th >=
+// 6000 km (see maxTaylorDist) gets only the latter. The cell's bracket is
+// the minimum over the sites of both ends, intersected with its chord
+// bracket, kept under the same two conditions. Sites: those the index
+// lists within d1(a) + S of a, S = 2 T + 2 (1 mm + 1e-9 d1(a)) + 1 m, T the
+// largest th of the block's pending cells of the tile, measured in
+// increasing order of chord while the chord's lower bound is within S of
+// the smallest distance so far, and kept within S of it. A site k left out
+// has f_k(a) > d(a) + 2 th + its margins, d(a) the anchor's nearest
+// distance, so its lower end f_k(a) - th - margin lies above the upper end
+// d(a) + th + margin of the anchor's nearest site: it changes neither end
+// of the minimum, which is therefore the minimum over every site, however
+// large T (that is, the block) makes the list. The same sites hold every
+// pending cell's nearest site (f_{s*}(a) <= s(a, p) + s(p, s_1) <= d(a) +
+// 2 t).
+//
+// Exact cells get Index.Nearest's value bit for bit: the smallest
+// geodesy.Distance(lat_p, lon_p, site) (Nearest's argument order) over the
+// tile's candidates or the anchor's sites (both hold the nearest), taken
+// in increasing order of chord until the chord's lower bound (chordBracket)
+// exceeds the smallest distance so far (such a site and the later ones
+// are farther).
+//
+// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km)
+// the chords settle 48% of the cells, and the anchors all but 1.3% (4
+// million cells of 2.45 km) or 0.8% (27 million of 0.94 km) of the
+// cells, which are computed exactly; the bounds then cost about 460 CPU
+// ns per cell, two thirds of it in Centres (PROJ), against 1500 to 1700
+// when every cell was computed (BenchmarkNullBoundsProjected in
+// cmd/internal/pass; see README, Performance).
+func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
+	n := w * h
+	sc := projPool.Get().(*projScratch)
+	defer projPool.Put(sc)
+	if cap(sc.lons) < n {
+		sc.lons, sc.lats = make([]float64, n), make([]float64, n)
+		sc.ex, sc.ey, sc.ez = make([]float64, n), make([]float64, n), make([]float64, n)
+	}
+	lons, lats := sc.lons[:n], sc.lats[:n]
+	// Centres (a projection per cell, most of the cost) only from the
+	// first to the last needed cell of each row.
+	if cap(sc.fetchA) < h {
+		sc.fetchA, sc.fetchZ = make([]int, h), make([]int, h)
+	}
+	fetchA, fetchZ := sc.fetchA[:h], sc.fetchZ[:h]
+	for y := range h {
+		a, z := 0, w
+		if need != nil {
+			for a < w && need[y*w+a] == 0 {
+				a++
+			}
+			for z > a && need[y*w+z-1] == 0 {
+				z--
+			}
+		}
+		fetchA[y], fetchZ[y] = a, z
+		if a < z {
+			f.centres(y0+y, x0+a, x0+z, lons[y*w+a:y*w+z], lats[y*w+a:y*w+z])
+		}
+	}
+	ex, ey, ez := sc.ex[:n], sc.ey[:n], sc.ez[:n]
+	if cap(sc.pend) < n {
+		sc.pend, sc.clo, sc.chi = make([]bool, n), make([]float64, n), make([]float64, n)
+	}
+	pend := sc.pend[:n]
+	clear(pend)
+	for i := range n {
+		lo[i], hi[i] = math.NaN(), math.NaN()
+		ex[i] = math.NaN()
+		if (need == nil || need[i] != 0) && validLonLat(lats[i], lons[i]) { // needed: fetched
+			p := projECEF(lats[i], lons[i])
+			ex[i], ey[i], ez[i] = p[0], p[1], p[2]
+		}
+	}
+	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
+		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}}
+	for r0 := 0; r0 < h; r0 += tileSide {
+		for c0 := 0; c0 < w; c0 += tileSide {
+			b.tile(r0, min(r0+tileSide, h), c0, min(c0+tileSide, w))
+		}
+	}
+	for tr := floorDiv(y0, tileSide); tr*tileSide < y0+h; tr++ {
+		for tc := floorDiv(x0, tileSide); tc*tileSide < x0+w; tc++ {
+			b.anchored(tr, tc)
+		}
+	}
+}
+
+// centre returns the latitude and longitude of the centre of cell (r, c)
+// of the block (block rows and columns; it may lie outside the block):
+// those fetched for the block, or else from Centres for that cell alone
+// (the same numbers: see Centres).
+func (b *projBracketer) centre(r, c int) (lat, lon float64) {
+	if r >= 0 && r < b.h && c >= b.sc.fetchA[r] && c < b.sc.fetchZ[r] {
+		i := r*b.w + c
+		return b.lats[i], b.lons[i]
+	}
+	var lo, la [1]float64
+	b.f.centres(b.y0+r, b.x0+c, b.x0+c+1, lo[:], la[:])
+	return la[0], lo[0]
+}
+
+// tile brackets the needed cells of rows [r0,r1) and columns [c0,c1) of
+// the block (see bracketProjected).
+func (b *projBracketer) tile(r0, r1, c0, c1 int) {
+	any := false
+	for r := r0; r < r1 && !any; r++ {
+		for c := c0; c < c1; c++ {
+			if !math.IsNaN(b.ex[r*b.w+c]) {
+				any = true
+				break
+			}
+		}
+	}
+	if !any {
+		return
+	}
+	single := r1-r0 == 1 && c1-c0 == 1
+	clat, clon := b.centre((r0+r1)/2, (c0+c1)/2)
+	if validLonLat(clat, clon) {
+		pc := projECEF(clat, clon)
+		// chordBracket's upper end grows with the chord: that of the
+		// longest chord bounds every cell's geodesic from c.
+		d2 := 0.0
+		for r := r0; r < r1; r++ {
+			for c := c0; c < c1; c++ {
+				i := r*b.w + c
+				if math.IsNaN(b.ex[i]) {
+					continue
+				}
+				dx, dy, dz := b.ex[i]-pc[0], b.ey[i]-pc[1], b.ez[i]-pc[2]
+				d2 = max(d2, dx*dx+dy*dy+dz*dz)
+			}
+		}
+		_, rho := chordBracket(math.Sqrt(d2))
+		if !math.IsInf(rho, 1) {
+			ix := b.f.ix
+			_, d1 := ix.NearestBounds(clat, clon, 0)
+			reach := d1 + rho
+			_, hc := chordBracket(min(reach, chordNarrowMax))
+			b.sc.cands = ix.Within(clat, clon, rho+max(reach, hc), b.sc.cands[:0])
+			if k := len(b.sc.cands); single || k > 0 && k <= maxCandidates {
+				b.cells(r0, r1, c0, c1, pc, rho)
+				return
+			}
+		}
+	}
+	if single {
+		// A needed cell is its own centre, with a position: not reached.
+		return
+	}
+	rm, cm := (r0+r1+1)/2, (c0+c1+1)/2
+	if rm == r1 {
+		rm = r0
+	}
+	if cm == c1 {
+		cm = c0
+	}
+	for _, q := range [4][4]int{{r0, rm, c0, cm}, {r0, rm, cm, c1}, {rm, r1, c0, cm}, {rm, r1, cm, c1}} {
+		if q[0] < q[1] && q[2] < q[3] {
+			b.tile(q[0], q[1], q[2], q[3])
+		}
+	}
+}
+
+// cells brackets the needed cells of the tile from the candidates in
+// sc.cands; pc is the ECEF position of the tile's centre and rho bounds
+// the chord from it to every needed cell.
+func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
+	sc := b.sc
+	sc.sites = sc.sites[:0]
+	for _, k := range sc.cands {
+		lat, lon := b.f.ix.Site(k)
+		p := projECEF(lat, lon)
+		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pc, p), lat: lat, lon: lon})
+	}
+	sites := sc.sites
+	for i := 1; i < len(sites); i++ {
+		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
+			sites[j], sites[j-1] = sites[j-1], sites[j]
+		}
+	}
+	// A site q is farther by chord than the first (P_0) from every cell p
+	// of the tile when
+	//
+	//	|p - P_q|^2 - |p - P_0|^2 = cc_q^2 - cc_0^2 - 2 (p - c).(P_q - P_0) >= cc_q^2 - cc_0^2 - 2 rho |P_q - P_0| > 0
+	//
+	// (the difference is linear in p; |p - c| <= rho): it is never the
+	// shortest chord, and is left out of the chords (with 1 m^2 and 1e-12
+	// cc_q^2 for rounding), though not out of an exact cell's sites.
+	near := append(sc.near[:0], sites...)
+	if len(near) > 1 {
+		p0, cc0 := near[0].p, near[0].cc
+		keep := near[:1]
+		for _, st := range near[1:] {
+			if st.cc*st.cc-cc0*cc0-2*rho*dist3(st.p, p0) > 1+1e-12*st.cc*st.cc {
+				continue
+			}
+			keep = append(keep, st)
+		}
+		near = keep
+	}
+	sc.near = near
+	for r := r0; r < r1; r++ {
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			px := b.ex[i]
+			if math.IsNaN(px) {
+				continue
+			}
+			py, pz := b.ey[i], b.ez[i]
+			d2 := math.Inf(1)
+			for q := range near {
+				st := &near[q]
+				// The chord from the cell is at least cc - rho: once that
+				// exceeds the shortest chord so far (by 1 m for rounding),
+				// this site and the farther ones are farther still.
+				if g := st.cc - rho - 1; g > 0 && g*g > d2 {
+					break
+				}
+				dx, dy, dz := px-st.p[0], py-st.p[1], pz-st.p[2]
+				d2 = min(d2, dx*dx+dy*dy+dz*dz)
+			}
+			lo, hi := chordBracket(math.Sqrt(d2))
+			if hi-lo <= 2*BracketTol*lo && b.bins.sameBins(lo, hi) {
+				b.lo[i], b.hi[i] = lo, hi
+				continue
+			}
+			if hi-lo > exactWidth*b.bins.binW {
+				// Too wide: left to the anchor of the cell's tile.
+				sc.pend[i], sc.clo[i], sc.chi[i] = true, lo, hi
+				continue
+			}
+			d := b.exact(i, sites)
+			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// exact returns the distance of block cell i to its nearest site among
+// sites, which hold it: the smallest geodesy.Distance from the cell's
+// centre, measuring the sites in increasing order of chord until a
+// chord's lower bound exceeds the smallest distance so far.
+func (b *projBracketer) exact(i int, sites []projSite) float64 {
+	px, py, pz := b.ex[i], b.ey[i], b.ez[i]
+	ord := b.sc.order[:0]
+	for q := range sites {
+		dx, dy, dz := px-sites[q].p[0], py-sites[q].p[1], pz-sites[q].p[2]
+		ord = append(ord, projOrder{d: math.Sqrt(dx*dx + dy*dy + dz*dz), q: q})
+	}
+	for k := 1; k < len(ord); k++ {
+		for j := k; j > 0 && ord[j].d < ord[j-1].d; j-- {
+			ord[j], ord[j-1] = ord[j-1], ord[j]
+		}
+	}
+	b.sc.order = ord
+	lat, lon := b.lats[i], b.lons[i]
+	best := math.Inf(1)
+	for _, o := range ord {
+		if l, _ := chordBracket(o.d); l > best {
+			break
+		}
+		s := &sites[o.q]
+		best = min(best, geodesy.Distance(lat, lon, s.lat, s.lon))
+	}
+	return best
+}
+
+// anchored brackets the cells of the block in global tile (tr, tc) (rows
+// tr*16 to tr*16+15 and columns tc*16 to tc*16+15 of the grid) that their
+// chord left too wide, from the tile's anchor, its centre cell (tr*16+8,
+// tc*16+8), whatever the block: see bracketProjected. A cell whose bracket
+// is still too wide or across a bin is computed exactly.
+func (b *projBracketer) anchored(tr, tc int) {
+	sc := b.sc
+	r0, r1 := max(tr*tileSide-b.y0, 0), min((tr+1)*tileSide-b.y0, b.h)
+	c0, c1 := max(tc*tileSide-b.x0, 0), min((tc+1)*tileSide-b.x0, b.w)
+	any := false
+	for r := r0; r < r1 && !any; r++ {
+		for c := c0; c < c1; c++ {
+			if sc.pend[r*b.w+c] {
+				any = true
+				break
+			}
+		}
+	}
+	if !any {
+		return
+	}
+	ar, ac := tr*tileSide+tileSide/2, tc*tileSide+tileSide/2
+	alat, alon := b.centre(ar-b.y0, ac-b.x0)
+	if !validLonLat(alat, alon) {
+		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0)
+		return
+	}
+	pa := projECEF(alat, alon)
+	// The largest upper bound on a pending cell's geodesic from the anchor.
+	// (Cells beyond maxChord, with no upper end, are computed exactly.)
+	d2 := 0.0
+	for r := r0; r < r1; r++ {
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			if !sc.pend[i] {
+				continue
+			}
+			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
+			if e := dx*dx + dy*dy + dz*dz; e <= maxChord*maxChord {
+				d2 = max(d2, e)
+			}
+		}
+	}
+	_, tmax := chordBracket(math.Sqrt(d2))
+	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
+	b.taylorCells(r0, r1, c0, c1, alat, alon, pa)
+}
+
+// anchorSites measures at the anchor (alat, alon) (ECEF pa) every site
+// that can be nearest to a pending cell within tmax of it or give it the
+// smallest bracket, into sc.anchor (by distance) and sc.asites; with no
+// anchor (alat NaN) it computes the pending cells exactly instead.
+func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64, tmax float64) {
+	sc := b.sc
+	ix := b.f.ix
+	if math.IsNaN(alat) {
+		for r := r0; r < r1; r++ {
+			for c := c0; c < c1; c++ {
+				if i := r*b.w + c; sc.pend[i] {
+					_, d := ix.Nearest(b.lats[i], b.lons[i], 0)
+					b.lo[i], b.hi[i] = d, d
+					sc.pend[i] = false
+				}
+			}
+		}
+		return
+	}
+	_, d1 := ix.NearestBounds(alat, alon, 0)
+	slack := 2*tmax + 2*(1e-3+1e-9*d1) + 1
+	sc.cands = ix.Within(alat, alon, d1+slack, sc.cands[:0])
+	sc.sites = sc.sites[:0]
+	for _, k := range sc.cands {
+		lat, lon := ix.Site(k)
+		p := projECEF(lat, lon)
+		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pa, p), lat: lat, lon: lon})
+	}
+	sites := sc.sites
+	for i := 1; i < len(sites); i++ {
+		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
+			sites[j], sites[j-1] = sites[j-1], sites[j]
+		}
+	}
+	best := math.Inf(1)
+	an := sc.anchor[:0]
+	for _, st := range sites {
+		if l, _ := chordBracket(st.cc); l > best+slack {
+			break // this site and the later ones are farther still
+		}
+		f0, az, _ := geodesy.Inverse(alat, alon, st.lat, st.lon)
+		sz, cz := math.Sincos(az * math.Pi / 180)
+		an = append(an, projAnchor{f0: f0, sz: sz, cz: cz, site: st})
+		best = min(best, f0)
+	}
+	keep := an[:0]
+	for _, m := range an {
+		if m.f0 <= best+slack {
+			keep = append(keep, m)
+		}
+	}
+	an = keep
+	for i := 1; i < len(an); i++ {
+		for j := i; j > 0 && an[j].f0 < an[j-1].f0; j-- {
+			an[j], an[j-1] = an[j-1], an[j]
+		}
+	}
+	sc.anchor = an
+	sc.asites = sc.asites[:0]
+	for _, m := range an {
+		sc.asites = append(sc.asites, m.site)
+	}
+}
+
+// taylorCells brackets each pending cell of the tile from the sites
+// measured at the anchor (alat, alon), ECEF pa (see bracketProjected),
+// keeps the intersection with its chord bracket when it is narrow and
+// inside one bin, and computes the cell exactly otherwise.
+func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64) {
+	sc := b.sc
+	const rad = math.Pi / 180
+	sp, cp := math.Sincos(alat * rad)
+	sl, cl := math.Sincos(alon * rad)
+	east := [3]float64{-sl, cl, 0}
+	north := [3]float64{-sp * cl, -sp * sl, cp}
+	k2 := chordKappa * chordKappa / 6
+	for r := r0; r < r1; r++ {
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			if !sc.pend[i] {
+				continue
+			}
+			sc.pend[i] = false
+			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
+			tl, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
+			if math.IsInf(th, 1) {
+				// Beyond maxChord from the anchor (huge cells): not within
+				// T of it, so the anchor's sites need not hold its nearest.
+				_, d := b.f.ix.Nearest(b.lats[i], b.lons[i], 0)
+				b.lo[i], b.hi[i] = d, d
+				continue
+			}
+			wn := dx*north[0] + dy*north[1] + dz*north[2]
+			we := dx*east[0] + dy*east[1] + dz*east[2]
+			e1 := k2*th*th*th + 1e-6
+			lo, hi := math.Inf(1), math.Inf(1)
+			for q := range sc.anchor {
+				m := &sc.anchor[q]
+				margin := 1e-3 + 1e-9*m.f0
+				if m.f0-th-margin > hi {
+					break // this site and the farther ones change neither end
+				}
+				tc := -(m.cz*wn + m.sz*we)
+				if m.f0+tc-e1-margin > hi && m.f0 > 2*th && m.f0+th < maxTaylorDist {
+					// Both ends of this site's bracket lie above hi (the
+					// Taylor lower end is at least f0 + t f'(0)).
+					continue
+				}
+				l1, h1 := projTaylor(m, tl, th, tc, e1, margin)
+				lo, hi = min(lo, l1), min(hi, h1)
+			}
+			lo, hi = max(lo, sc.clo[i]), min(hi, sc.chi[i])
+			if hi-lo <= 2*BracketTol*lo && b.bins.sameBins(lo, hi) {
+				b.lo[i], b.hi[i] = lo, hi
+				continue
+			}
+			d := b.exact(i, sc.asites)
+			b.lo[i], b.hi[i] = d, d
+		}
+	}
+}
+
+// projTaylor returns bounds on the distance to site m from a cell at
+// geodesic length t in [tl, th] from the anchor, where tc = <w, -v> for
+// w the projection of the cell's ECEF offset onto the anchor's tangent
+// plane and v the unit vector towards the site (so |tc - t f'(0)| <= e1,
+// see bracketProjected), widened by margin.
+func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) {
+	lo, hi = max(0, m.f0-th-margin), m.f0+th+margin
+	if !(m.f0 > 2*th && m.f0+th < maxTaylorDist) {
+		return lo, hi
+	}
+	a1, a2 := tc-e1, tc+e1
+	// f'(0) = t f'(0) / t in [cl, ch].
+	cl, ch := -1.0, 1.0
+	if tl > 0 {
+		cl = max(-1, min(a1/tl, a1/th))
+		ch = min(1, max(a2/tl, a2/th))
+	}
+	h2 := 1 / (m.f0 - th)
+	h1 := hLoFast(m.f0 + th)
+	// f' runs over [cl, ch + t B] (f'' in [A, B], A >= 0): 1 - f'^2 over
+	// that range bounds f''/h; B first from q2 <= 1, then once more.
+	b := h2
+	for range 2 {
+		b = h2 * (1 - minSq(cl, min(1, ch+th*b)))
+	}
+	x2 := min(1, ch+th*b)
+	q1 := max(0, 1-max(cl*cl, x2*x2))
+	if l := m.f0 + a1 + h1*q1*tl*tl/2 - margin; l > lo {
+		lo = l
+	}
+	if h := m.f0 + a2 + b*th*th/2 + margin; h < hi {
+		hi = h
+	}
+	return lo, hi
+}
+
+// minSq returns the smallest x^2 for x in [x1, x2].
+func minSq(x1, x2 float64) float64 {
+	if x1 <= 0 && x2 >= 0 {
+		return 0
+	}
+	return min(x1*x1, x2*x2)
+}
+
+// projECEF returns the ECEF position (m) of geodetic (lat, lon) in
+// degrees, as ecef does, with the parametric latitude's norm taken by a
+// square root rather than math.Hypot (its terms lie in [-1, 1]).
+func projECEF(lat, lon float64) [3]float64 {
+	const rad = math.Pi / 180
+	sp, cp := math.Sincos(lat * rad)
+	sp *= 1 - geodesy.Flattening
+	r := 1 / math.Sqrt(sp*sp+cp*cp)
+	sl, cl := math.Sincos(lon * rad)
+	ar := geodesy.SemiMajor * cp * r
+	return [3]float64{ar * cl, ar * sl, geodesy.SemiMinor * sp * r}
+}

@@ -1,0 +1,259 @@
+package nullmodel
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"areasweep/extent/geodesy"
+)
+
+// sphereR is the radius (m) of the spherical projections of the tests.
+const sphereR = 6371000.0
+
+// laeaGrid returns Centres for a grid of square cells of side cell metres
+// with top-left corner (x0, y0) in a spherical Lambert azimuthal
+// equal-area projection centred at (lat1, lon0) (Snyder, Map projections:
+// a working manual, USGS PP 1395, 1987, eqs. 20-14, 20-15, 24-16, 24-17;
+// the inverse): a cell farther than 2R from the centre has no position
+// (NaN).
+func laeaGrid(x0, y0, cell, lat1, lon0 float64) Centres {
+	const rad = math.Pi / 180
+	s1, c1 := math.Sincos(lat1 * rad)
+	return func(row, ca, cb int, lons, lats []float64) {
+		y := y0 - (float64(row)+0.5)*cell
+		for c := ca; c < cb; c++ {
+			x := x0 + (float64(c)+0.5)*cell
+			rho := math.Hypot(x, y)
+			if rho == 0 {
+				lons[c-ca], lats[c-ca] = lon0, lat1
+				continue
+			}
+			cc := 2 * math.Asin(rho/(2*sphereR)) // NaN beyond 2R
+			sc, ccos := math.Sincos(cc)
+			lats[c-ca] = math.Asin(ccos*s1+y*sc*c1/rho) / rad
+			lons[c-ca] = lon0 + math.Atan2(x*sc, rho*c1*ccos-y*s1*sc)/rad
+		}
+	}
+}
+
+// polarGrid returns Centres for a grid of square cells of side cell metres
+// with top-left corner (x0, y0) in a spherical north polar stereographic
+// projection with central meridian lon0 (Snyder 1987, eqs. 21-5 to 21-7,
+// 20-14 and 20-16).
+func polarGrid(x0, y0, cell, lon0 float64) Centres {
+	return func(row, ca, cb int, lons, lats []float64) {
+		y := y0 - (float64(row)+0.5)*cell
+		for c := ca; c < cb; c++ {
+			x := x0 + (float64(c)+0.5)*cell
+			rho := math.Hypot(x, y)
+			lats[c-ca] = 90 - 2*math.Atan(rho/(2*sphereR))*180/math.Pi
+			lons[c-ca] = lon0 + math.Atan2(x, -y)*180/math.Pi
+		}
+	}
+}
+
+// TestBracketProjected checks Bracket on Fields made by New (the projected
+// path) against Distances and Index.Nearest on grids whose tiles are not
+// latitude-longitude rectangles: Lambert azimuthal equal-area with 2 km and
+// 50 km cells, one whose corner lies beyond the projection's domain (cells
+// with no position), and polar stereographic grids around the pole, with
+// 25 km cells and with 1000 km cells (tiles wider than maxChord). Every
+// bracket holds the exact distance, shares its bins at both ends and is
+// within 2 BracketTol; a degenerate bracket equals Nearest at the cell
+// centre bit for bit; cells with no position and cells not needed are NaN;
+// and the brackets are the same however the grid is cut into blocks (so
+// however it is cut into tiles), with and without a need mask. Most cells
+// near the sites must be bracketed (not exact), or the path is not tested.
+func TestBracketProjected(t *testing.T) {
+	cases := []struct {
+		name           string
+		cen            Centres
+		w, h           int
+		sw, ss, se, sn float64 // box of the sites
+		sites          int
+		minBracketed   float64 // share of cells
+	}{
+		{"laea-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 8, 51, 12, 53, 30, 0.9},
+		{"laea-50km", laeaGrid(-3000e3, 2200e3, 50000, 52, 10), 120, 90, 0, 45, 20, 58, 40, 0.1},
+		{"laea-edge", laeaGrid(11.5e6, 3.0e6, 40000, 52, 10), 80, 150, 150, -70, 175, -40, 10, 0},
+		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3},
+		// Cells of 1000 km on a map of nearly the whole sphere: tiles
+		// wider than maxChord.
+		{"polar-1000km", polarGrid(-12e6, 12e6, 1000e3, 0), 24, 24, -180, -60, 180, 80, 20, 0},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			lats, lons := clusteredSites(tc.sites, tc.sw, tc.ss, tc.se, tc.sn, 13)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			f := New(ix, tc.cen)
+			n := tc.w * tc.h
+			want := make([]float64, n)
+			f.Distances(0, 0, tc.w, tc.h, nil, want)
+			// Nearest at each centre, independently of Distances.
+			clon, clat := make([]float64, tc.w), make([]float64, tc.w)
+			nan := 0
+			for r := range tc.h {
+				tc.cen(r, 0, tc.w, clon, clat)
+				for c := range tc.w {
+					_, d := ix.Nearest(clat[c], clon[c], 0)
+					if v := want[r*tc.w+c]; v != d && !(math.IsNaN(v) && math.IsNaN(d)) {
+						t.Fatalf("cell %d,%d: Distances %v, Nearest %v", c, r, v, d)
+					}
+					if math.IsNaN(d) {
+						nan++
+					}
+				}
+			}
+			if tc.name == "laea-edge" && (nan == 0 || nan == n) {
+				t.Fatalf("%d of %d cells with no position: the case must have some, not all", nan, n)
+			}
+			layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
+			// Two need masks: 1 cell in 11 left out, and a sparse one
+			// (rows 3 to 5 of every 6 and a column in 4 left out), whose
+			// rows and tiles start and end at cells not needed.
+			dense, sparse := make([]uint64, n), make([]uint64, n)
+			for i := range dense {
+				if i%11 != 3 {
+					dense[i] = 1
+				}
+				if r, c := i/tc.w, i%tc.w; (r/3)%2 == 0 && c%4 != 1 {
+					sparse[i] = 1
+				}
+			}
+			var ref []float64
+			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}, {1, 1}} {
+				for m, need := range [][]uint64{nil, dense, sparse} {
+					masked := need != nil
+					lo, hi := make([]float64, n), make([]float64, n)
+					walkTiles(tc.w, tc.h, bs[0], bs[1], need, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
+						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
+					})
+					exact, bad := 0, 0
+					for i, d := range want {
+						if masked && need[i] == 0 || math.IsNaN(d) {
+							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
+								t.Fatalf("blocks %v mask %d cell %d (distance %v): bracket [%v, %v], want NaN", bs, m, i, d, lo[i], hi[i])
+							}
+							continue
+						}
+						b1, h1 := layout.Locate(0 - hi[i])
+						b2, h2 := layout.Locate(0 - lo[i])
+						ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
+						if lo[i] == hi[i] {
+							ok = lo[i] == d
+							exact++
+						}
+						if !ok {
+							if bad < 5 {
+								t.Errorf("blocks %v mask %d cell %d: bracket [%.9f, %.9f], distance %.9f", bs, m, i, lo[i], hi[i], d)
+							}
+							bad++
+						}
+					}
+					if bad > 0 {
+						t.Fatalf("blocks %v mask %d: %d bad brackets", bs, m, bad)
+					}
+					valid := n - nan
+					if !masked {
+						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, valid, 100*float64(exact)/float64(valid))
+						if got := float64(valid-exact) / float64(valid); got < tc.minBracketed {
+							t.Fatalf("blocks %v: %.1f%% of the cells bracketed, want at least %.0f%%", bs, 100*got, 100*tc.minBracketed)
+						}
+					}
+					key := append(append([]float64{}, lo...), hi...)
+					if ref == nil {
+						ref = key
+						continue
+					}
+					for i := range key {
+						j := i % n
+						if masked && need[j] == 0 {
+							continue
+						}
+						if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
+							t.Fatalf("blocks %v mask %d: bracket of cell %d differs from the one-block cut", bs, m, j)
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestChordNarrowMax checks chordNarrowMax: from it to past maxChord no
+// chord bracket is narrow (hi - lo <= 2 BracketTol lo), so the projected
+// path may leave the shortest chord unknown there; and just below it some
+// are (it is not far above the narrow range, or cells would be computed
+// that a bracket could settle).
+func TestChordNarrowMax(t *testing.T) {
+	for d := chordNarrowMax; d < 2*maxChord; d *= 1.0001 {
+		if lo, hi := chordBracket(d); hi-lo <= 2*BracketTol*lo {
+			t.Fatalf("chord %.0f m: bracket [%v, %v] is narrow", d, lo, hi)
+		}
+	}
+	if lo, hi := chordBracket(0.9 * chordNarrowMax); !(hi-lo <= 2*BracketTol*lo) {
+		t.Fatalf("chord %.0f m: bracket [%v, %v] is not narrow", 0.9*chordNarrowMax, lo, hi)
+	}
+}
+
+// TestProjECEF checks projECEF against ecef (math.Hypot) at random points,
+// poles included: within 1e-8 m, far inside the chord bracket's 1 mm
+// margin.
+func TestProjECEF(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	for i := range 100000 {
+		lat, lon := 180*r.Float64()-90, 720*r.Float64()-360
+		if i%100 == 0 {
+			lat = math.Copysign(90, lat)
+		}
+		p, q := projECEF(lat, lon), ecef(lat, lon)
+		if d := dist3(p, q); !(d <= 1e-8) {
+			t.Fatalf("(%v, %v): projECEF %v, ecef %v, %v m apart", lat, lon, p, q, d)
+		}
+	}
+}
+
+// BenchmarkFieldBracketProjected measures the projected path of Bracket
+// without the cost of a real projection: a spherical Lambert azimuthal
+// equal-area grid (laeaGrid, a few sines per cell instead of PROJ) shaped
+// like BenchmarkNullVsRaster's EPSG:3035 study (6000 x 4000 km in 2449 x
+// 1633 cells), 500 sites in clusters around 10 E, 50 N, the layout of
+// testLayout, in blocks of 240 x 240 cells: CPU ns per cell (the
+// projection included, about 60 ns) and the share of cells computed
+// exactly.
+func BenchmarkFieldBracketProjected(b *testing.B) {
+	const w, h = 2449, 1633
+	lats, lons := clusteredSites(500, -2, 42, 22, 58, 21)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := New(ix, laeaGrid(-3e6, 2e6, 6e6/w, 52, 10))
+	want := make([]float64, w*h/64)
+	f.Distances(0, 0, w, h/64, nil, want)
+	layout := testLayout(b, want, f.FarthestBound(w, h, 64))
+	lo, hi := make([]float64, 240*240), make([]float64, 240*240)
+	b.ReportAllocs()
+	exact := 0
+	c0 := cpuNanos(b)
+	for b.Loop() {
+		exact = 0
+		for y0 := 0; y0 < h; y0 += 240 {
+			for x0 := 0; x0 < w; x0 += 240 {
+				bw, bh := min(240, w-x0), min(240, h-y0)
+				f.Bracket(x0, y0, bw, bh, nil, layout, lo, hi)
+				for i := range bw * bh {
+					if lo[i] == hi[i] {
+						exact++
+					}
+				}
+			}
+		}
+	}
+	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
+	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
+}
