@@ -277,6 +277,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	if cap(sc.pending) < n {
 		sc.pending = make([]bool, n)
 	}
+	clear(sc.pending[:n])
 	if cap(sc.clo) < n {
 		sc.clo, sc.chi = make([]float64, n), make([]float64, n)
 	}
@@ -288,7 +289,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	}
 	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
-		cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+		left: sc.left[:0], cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
 	}
@@ -300,6 +301,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 			b.super(sr, scol)
 		}
 	}
+	sc.left = b.left
 }
 
 func floorDiv(a, b int) int {
@@ -323,8 +325,9 @@ type bracketer struct {
 	cands    []int
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
-	pending  []bool    // per block cell: left to the patches
-	clo, chi []float64 // per block cell: the chord bracket
+	left     []leftCell // the super-tile's cells the chords leave to the anchors
+	pending  []bool     // per block cell: left to the patches
+	clo, chi []float64  // per block cell: the chord bracket of a pending cell
 	// ECEF of the block's cells: (rowA[y] colC[x], rowA[y] colS[x], rowZ[y])
 	rowA, rowZ []float64
 	colC, colS []float64
@@ -367,16 +370,11 @@ func (b *bracketer) needed(c, r int) (int, bool) {
 // super brackets the cells of the block in super-tile (sr, scol).
 func (b *bracketer) super(sr, scol int) {
 	r0, c0 := sr*SuperTile, scol*SuperTile
-	any := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h) && !any; r++ {
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			if _, ok := b.needed(c, r); ok {
-				any = true
-				break
-			}
-		}
-	}
-	if !any {
+	// The super-tile's cells in the block: rows [y1, y2), columns [x1, x2)
+	// of the block.
+	y1, y2 := max(r0, b.y0)-b.y0, min(r0+SuperTile, b.y0+b.h)-b.y0
+	x1, x2 := max(c0, b.x0)-b.x0, min(c0+SuperTile, b.x0+b.w)-b.x0
+	if b.need != nil && !b.anyNeeded(y1, y2, x1, x2) {
 		return
 	}
 	ll, ix := b.ll, b.f.ix
@@ -400,7 +398,8 @@ func (b *bracketer) super(sr, scol int) {
 		return
 	}
 	// First the chord brackets: no geodesic.
-	if !b.chords(r0, c0, clat, clon, rho) {
+	skip := b.chords(y1, y2, x1, x2, clat, clon, rho)
+	if !skip && len(b.left) == 0 {
 		return
 	}
 	// Then the super-tile's centre as the anchor of the cells left.
@@ -423,27 +422,23 @@ func (b *bracketer) super(sr, scol int) {
 		b.measured = keep
 	}
 	sortSites(b.measured)
+	// j0 is the stencil entry of block cell (0, 0).
+	j0 := (b.y0-cr+SuperTile/2)*SuperTile + b.x0 - cc + SuperTile/2
 	pend := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			i, ok := b.needed(c, r)
-			if !ok || !b.pending[i] {
-				continue
+	if skip {
+		// No chord bracket: (0, +Inf), which changes no anchor bracket.
+		for y := y1; y < y2; y++ {
+			for x := x1; x < x2; x++ {
+				i := y*b.w + x
+				if b.need != nil && b.need[i] == 0 {
+					continue
+				}
+				pend = b.centreCell(i, big, j0+y*SuperTile+x, 0, math.Inf(1), r0, c0) || pend
 			}
-			j := (r-cr+SuperTile/2)*SuperTile + c - cc + SuperTile/2
-			ok, w := b.cell(i, big, j)
-			if ok {
-				b.pending[i] = false
-				continue
-			}
-			if w <= exactWidth*b.binW {
-				// A narrow bracket across a bin edge: a patch's anchor
-				// would cost about the geodesics of measuring the cell.
-				b.exact(i, b.measured, big, j, ll.lat(r), ll.lon(c))
-				b.pending[i] = false
-				continue
-			}
-			pend = true
+		}
+	} else {
+		for _, p := range b.left {
+			pend = b.centreCell(p.i, big, j0+int(p.y)*SuperTile+int(p.x), p.lo, p.hi, r0, c0) || pend
 		}
 	}
 	if !pend {
@@ -456,13 +451,63 @@ func (b *bracketer) super(sr, scol int) {
 	}
 }
 
-// chords brackets every needed cell of the block in super-tile (r0, c0)
-// (centre (clat, clon), every cell centre within rho of it) from its ECEF
-// chords to the candidate sites (chordBracket; the minimum over the sites
-// of both ends), keeps the bracket in clo and chi, sets lo and hi of the
-// cells whose bracket is narrow enough and inside one bin, marks the
-// others pending, and reports whether any is.
-func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
+// anyNeeded reports whether a cell of block rows [y1, y2) and columns
+// [x1, x2) is needed.
+func (b *bracketer) anyNeeded(y1, y2, x1, x2 int) bool {
+	for y := y1; y < y2; y++ {
+		for _, v := range b.need[y*b.w+x1 : y*b.w+x2] {
+			if v != 0 {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// centreCell brackets block cell i from the sites measured at the
+// super-tile's centre (entry j of its stencil st) and its chord bracket
+// [clo, chi]; when that fails it computes the cell exactly or leaves it to
+// its patch (pending, with the chord bracket kept), and then reports true.
+// (r0, c0) is the super-tile's first cell.
+func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64, r0, c0 int) bool {
+	lo, hi := b.anchorBracket(st, j)
+	// Both brackets hold the distance: keep their intersection.
+	lo, hi = max(lo, clo), min(hi, chi)
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return false
+	}
+	if hi-lo <= exactWidth*b.binW {
+		// A narrow bracket across a bin edge: a patch's anchor would cost
+		// about the geodesics of measuring the cell.
+		r, c := b.y0+i/b.w, b.x0+i%b.w
+		b.exact(i, b.measured, st, j, b.ll.lat(r), b.ll.lon(c))
+		return false
+	}
+	b.pending[i] = true
+	b.clo[i], b.chi[i] = clo, chi
+	return true
+}
+
+// leftCell is a cell that the chords leave to the anchors: its index in
+// the block, its column and row in the block and its chord bracket.
+type leftCell struct {
+	i      int
+	x, y   int32
+	lo, hi float64
+}
+
+// chords brackets every needed cell of the block in rows [y1, y2) and
+// columns [x1, x2) of the block, those of a super-tile (centre (clat,
+// clon), every cell centre within rho of it), from its ECEF chords to the
+// candidate sites (chordBracket; the minimum over the sites of both
+// ends), sets lo and hi of the cells whose bracket is narrow enough and
+// inside one bin, and lists the others in b.left with their bracket. It
+// reports true when it skips the chords (see below): then every needed
+// cell is left to the anchors, with the chord bracket (0, +Inf), and
+// b.left is not filled.
+func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
+	b.left = b.left[:0]
 	pc := ecef(clat, clon)
 	b.csites = b.csites[:0]
 	for _, k := range b.cands {
@@ -500,28 +545,26 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 	// the anchors at once with no chord bracket (0, +Inf).
 	if dmin := b.csites[0].cc - rho - 1; dmin > 0 {
 		if lo, hi := chordBracket(dmin); hi-lo >= chordSkip*b.binW {
-			for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-				for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-					if i, ok := b.needed(c, r); ok {
-						b.clo[i], b.chi[i] = 0, math.Inf(1)
-						b.pending[i] = true
-					}
-				}
-			}
 			return true
 		}
 	}
-	pend := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-		y := r - b.y0
+	// The loops below are chordBracket and sameBins written out: the
+	// common case of a cell is a few multiplications and comparisons.
+	kappa := chordKappa
+	for y := y1; y < y2; y++ {
 		ar, zr := b.rowA[y], b.rowZ[y]
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			i, ok := b.needed(c, r)
-			if !ok {
+		row := y * b.w
+		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
+		colC, colS := b.colC[x1:x2], b.colS[x1:x2]
+		var need []uint64
+		if b.need != nil {
+			need = b.need[row+x1 : row+x2]
+		}
+		for x := range lo {
+			if need != nil && need[x] == 0 {
 				continue
 			}
-			x := c - b.x0
-			px, py := ar*b.colC[x], ar*b.colS[x]
+			px, py := ar*colC[x], ar*colS[x]
 			// Both ends of chordBracket grow with the chord, so the
 			// minimum over the sites of each end is that of the shortest
 			// chord.
@@ -537,18 +580,26 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 				dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
 				d2 = min(d2, dx*dx+dy*dy+dz*dz)
 			}
-			lo, hi := chordBracket(math.Sqrt(d2))
-			b.clo[i], b.chi[i] = lo, hi
-			if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
-				b.lo[i], b.hi[i] = lo, hi
-				b.pending[i] = false
+			// chordBracket(d).
+			d := math.Sqrt(d2)
+			margin := 1e-3 + 1e-9*d
+			l, h := d-margin, math.Inf(1)
+			if l < 0 {
+				l = 0
+			}
+			if d <= maxChord {
+				k := kappa * d / 2
+				u := k * k
+				h = d*(1+u*(1.0/6+u*0.1)) + margin
+			}
+			if h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+				lo[x], hi[x] = l, h
 				continue
 			}
-			b.pending[i] = true
-			pend = true
+			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: l, hi: h})
 		}
 	}
-	return pend
+	return false
 }
 
 // exactWidth is the width, in floor bins, of the widest bracket from a
@@ -612,11 +663,26 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 }
 
 // cell brackets block cell i from the measured sites, at stencil entry j
-// of st, and reports whether the bracket is narrow enough and inside one
-// bin (then lo[i] and hi[i] are set).
-func (b *bracketer) cell(i int, st *stencil, j int) (bool, float64) {
+// of st, and its chord bracket [clo[i], chi[i]], and reports whether the
+// bracket is narrow enough and inside one bin (then lo[i] and hi[i] are
+// set).
+func (b *bracketer) cell(i int, st *stencil, j int) bool {
+	lo, hi := b.anchorBracket(st, j)
+	// Both brackets hold the distance: keep their intersection.
+	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return true
+	}
+	return false
+}
+
+// anchorBracket returns the bracket of the cell at stencil entry j of st
+// from the measured sites: the minimum over them of both ends of
+// taylorBracket.
+func (b *bracketer) anchorBracket(st *stencil, j int) (lo, hi float64) {
 	t, su, cu := st.t[j], st.sa[j], st.ca[j]
-	lo, hi := math.Inf(1), math.Inf(1)
+	lo, hi = math.Inf(1), math.Inf(1)
 	for q := range b.measured {
 		// Sites are in increasing order of f0: once f0 - t > hi, this site
 		// and the farther ones have both ends above hi, and change
@@ -632,13 +698,7 @@ func (b *bracketer) cell(i int, st *stencil, j int) (bool, float64) {
 			hi = h1
 		}
 	}
-	// Both brackets hold the distance: keep their intersection.
-	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
-	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
-		b.lo[i], b.hi[i] = lo, hi
-		return true, hi - lo
-	}
-	return false, hi - lo
+	return lo, hi
 }
 
 // exactRange computes the cells of the block in the global rectangle of
@@ -731,7 +791,7 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 				continue
 			}
 			j := (dr+patchK)*patchP + dc + patchK
-			if ok, _ := b.cell(i, st, j); ok {
+			if b.cell(i, st, j) {
 				continue
 			}
 			b.exact(i, b.measured, st, j, ll.lat(ra+dr), ll.lon(ca+dc))
