@@ -842,9 +842,14 @@ func (b *bracketer) sameBins(lo, hi float64) bool {
 	}
 	u1, u2 := 0-hi, 0-lo
 	// The floor bin k of u1 (floorBin; u2 >= u1 is in a bin >= k): u2
-	// shares it iff u2 s < k + 1, exact since s is a power of two.
+	// shares it iff u2 s < k + 1, exact since s is a power of two. k is
+	// floor(x) by truncation (exact: |x| < 2^63 for any distance), but
+	// for the sign of a zero, which k + 1 does not see.
 	x, y := u1*b.scale, u2*b.scale
-	k := math.Floor(x)
+	k := float64(int64(x))
+	if k > x {
+		k--
+	}
 	if x == 0 && u1 < 0 {
 		k = -1 // underflow: bin -1
 	}
@@ -867,7 +872,7 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// The 1-Lipschitz bound, widened by the margin so that a bracket is
 	// never a single value (only cells measured with Distance are).
 	margin := 1e-3 + 1e-9*m.f0
-	lo, hi = math.Max(0, m.f0-t-margin), m.f0+t+margin
+	lo, hi = max(0, m.f0-t-margin), m.f0+t+margin
 	if !m.taylor {
 		return lo, hi
 	}
