@@ -426,19 +426,10 @@ func (b *bracketer) super(sr, scol int) {
 	j0 := (b.y0-cr+SuperTile/2)*SuperTile + b.x0 - cc + SuperTile/2
 	pend := false
 	if skip {
-		// No chord bracket: (0, +Inf), which changes no anchor bracket.
-		for y := y1; y < y2; y++ {
-			for x := x1; x < x2; x++ {
-				i := y*b.w + x
-				if b.need != nil && b.need[i] == 0 {
-					continue
-				}
-				pend = b.centreCell(i, big, j0+y*SuperTile+x, 0, math.Inf(1), r0, c0) || pend
-			}
-		}
+		pend = b.centreRows(y1, y2, x1, x2, big, j0)
 	} else {
 		for _, p := range b.left {
-			pend = b.centreCell(p.i, big, j0+int(p.y)*SuperTile+int(p.x), p.lo, p.hi, r0, c0) || pend
+			pend = b.centreCell(p.i, big, j0+int(p.y)*SuperTile+int(p.x), p.lo, p.hi) || pend
 		}
 	}
 	if !pend {
@@ -464,12 +455,59 @@ func (b *bracketer) anyNeeded(y1, y2, x1, x2 int) bool {
 	return false
 }
 
+// centreRows brackets every needed cell of block rows [y1, y2) and
+// columns [x1, x2), a super-tile whose chords were skipped, from the sites
+// measured at its centre (j0: the entry of st, its stencil, of block cell
+// (0, 0)), as centreCell with the chord bracket (0, +Inf), which changes
+// no anchor bracket (their lower ends are >= +0, never NaN). One measured
+// site (the common case) has its loop of its own.
+func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
+	pend := false
+	var one *anchorSite
+	if len(b.measured) == 1 {
+		one = &b.measured[0]
+	}
+	for y := y1; y < y2; y++ {
+		row, jr := y*b.w, j0+y*SuperTile
+		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
+		ts, sa, ca := st.t[jr+x1:jr+x2], st.sa[jr+x1:jr+x2], st.ca[jr+x1:jr+x2]
+		var need []uint64
+		if b.need != nil {
+			need = b.need[row+x1 : row+x2]
+		}
+		for x := range lo {
+			if need != nil && need[x] == 0 {
+				continue
+			}
+			var l, h float64
+			if one != nil {
+				// anchorBracket of one site.
+				l1, h1 := taylorBracket(one, ts[x], sa[x], ca[x])
+				l, h = math.Inf(1), math.Inf(1)
+				if l1 < l {
+					l = l1
+				}
+				if h1 < h {
+					h = h1
+				}
+			} else {
+				l, h = b.anchorBracket(st, jr+x1+x)
+			}
+			if h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+				lo[x], hi[x] = l, h
+				continue
+			}
+			pend = b.centreFailed(row+x1+x, st, jr+x1+x, l, h, 0, math.Inf(1)) || pend
+		}
+	}
+	return pend
+}
+
 // centreCell brackets block cell i from the sites measured at the
 // super-tile's centre (entry j of its stencil st) and its chord bracket
 // [clo, chi]; when that fails it computes the cell exactly or leaves it to
-// its patch (pending, with the chord bracket kept), and then reports true.
-// (r0, c0) is the super-tile's first cell.
-func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64, r0, c0 int) bool {
+// its patch (see centreFailed), and then reports true.
+func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64) bool {
 	lo, hi := b.anchorBracket(st, j)
 	// Both brackets hold the distance: keep their intersection.
 	lo, hi = max(lo, clo), min(hi, chi)
@@ -477,6 +515,14 @@ func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64, r0, 
 		b.lo[i], b.hi[i] = lo, hi
 		return false
 	}
+	return b.centreFailed(i, st, j, lo, hi, clo, chi)
+}
+
+// centreFailed takes block cell i (entry j of stencil st) whose bracket
+// [lo, hi] from the super-tile's centre failed: it computes it exactly
+// when the bracket is narrow, or leaves it to its patch (pending, with its
+// chord bracket [clo, chi] kept) and then reports true.
+func (b *bracketer) centreFailed(i int, st *stencil, j int, lo, hi, clo, chi float64) bool {
 	if hi-lo <= exactWidth*b.binW {
 		// A narrow bracket across a bin edge: a patch's anchor would cost
 		// about the geodesics of measuring the cell.
@@ -551,8 +597,12 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 	// The loops below are chordBracket and sameBins written out: the
 	// common case of a cell is a few multiplications and comparisons.
 	kappa := chordKappa
+	// One site (the common case): its chord is the shortest, and the
+	// square of its z difference is the row's.
+	one, p0 := len(b.csites) == 1, b.csites[0].p
 	for y := y1; y < y2; y++ {
 		ar, zr := b.rowA[y], b.rowZ[y]
+		dz2 := (zr - p0[2]) * (zr - p0[2])
 		row := y * b.w
 		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
 		colC, colS := b.colC[x1:x2], b.colS[x1:x2]
@@ -565,20 +615,27 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 				continue
 			}
 			px, py := ar*colC[x], ar*colS[x]
-			// Both ends of chordBracket grow with the chord, so the
-			// minimum over the sites of each end is that of the shortest
-			// chord.
-			d2 := math.Inf(1)
-			for q := range b.csites {
-				st := &b.csites[q]
-				// The chord from the cell is at least cc - rho: once that
-				// exceeds the shortest chord so far (by 1 m for rounding),
-				// this site and the farther ones are farther still.
-				if g := st.cc - rho - 1; g > 0 && g*g > d2 {
-					break
+			var d2 float64
+			if one {
+				dx, dy := px-p0[0], py-p0[1]
+				d2 = dx*dx + dy*dy + dz2
+			} else {
+				// Both ends of chordBracket grow with the chord, so the
+				// minimum over the sites of each end is that of the
+				// shortest chord.
+				d2 = math.Inf(1)
+				for q := range b.csites {
+					st := &b.csites[q]
+					// The chord from the cell is at least cc - rho: once
+					// that exceeds the shortest chord so far (by 1 m for
+					// rounding), this site and the farther ones are farther
+					// still.
+					if g := st.cc - rho - 1; g > 0 && g*g > d2 {
+						break
+					}
+					dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
+					d2 = min(d2, dx*dx+dy*dy+dz*dz)
 				}
-				dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
-				d2 = min(d2, dx*dx+dy*dy+dz*dz)
 			}
 			// chordBracket(d).
 			d := math.Sqrt(d2)
