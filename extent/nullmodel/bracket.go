@@ -345,6 +345,7 @@ type bracketer struct {
 type anchorSite struct {
 	k          int
 	f0, inv    float64 // distance and its inverse
+	margin     float64 // taylorBracket's margin, 1 mm + 1e-9 f0
 	sz, cz     float64
 	taylor     bool
 	slat, slon float64
@@ -712,7 +713,7 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 	slat, slon := b.f.ix.Site(k)
 	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
 	sz, cz := math.Sincos(az * math.Pi / 180)
-	m := anchorSite{k: k, f0: f0, inv: 1 / f0, sz: sz, cz: cz, slat: slat, slon: slon}
+	m := anchorSite{k: k, f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, sz: sz, cz: cz, slat: slat, slon: slon}
 	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
 		m.taylor = true
 	}
@@ -928,7 +929,7 @@ func (b *bracketer) sameBins(lo, hi float64) bool {
 func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// The 1-Lipschitz bound, widened by the margin so that a bracket is
 	// never a single value (only cells measured with Distance are).
-	margin := 1e-3 + 1e-9*m.f0
+	margin := m.margin
 	lo, hi = max(0, m.f0-t-margin), m.f0+t+margin
 	if !m.taylor {
 		return lo, hi
@@ -946,31 +947,33 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// 1/(f0-t) = 1/(f0 (1-x)) <= (1 + x + 2x^2)/f0; the other terms of
 	// hLoFast use the larger f0+t, which only lowers them further.
 	x := t * m.inv
-	h1 := (1-x)*m.inv - (m.f0+t)*kLo1 - (m.f0+t)*(m.f0+t)*(m.f0+t)*kLo3
+	ft := m.f0 + t
+	h1 := (1-x)*m.inv - ft*kLo1 - ft*ft*ft*kLo3
 	h2 := (1 + x + 2*x*x) * m.inv
 	// f'' in [h1 q1, h2 q2], q the range of 1 - f'^2 with f' in [c0, p2];
-	// twice, the second time with p2 from the first upper bound on f''.
-	b := h2
-	var q1, q2 float64
-	for range 2 {
-		p2 := c0 + t*b
-		if p2 > 1 {
-			p2 = 1
-		}
-		q1 = 1 - c0*c0
-		if p2*p2 > c0*c0 {
-			q1 = 1 - p2*p2
-		}
-		if q1 < 0 {
-			q1 = 0
-		}
-		q2 = 1.0
-		if c0 > 0 {
-			q2 = 1 - c0*c0
-		} else if p2 < 0 {
-			q2 = 1 - p2*p2
-		}
-		b = h2 * q2
+	// twice, the second time with p2 from the first upper bound on f''
+	// (the first time only q2 is needed).
+	cc := c0 * c0
+	p2 := min1(c0 + t*h2)
+	q2 := 1.0
+	if c0 > 0 {
+		q2 = 1 - cc
+	} else if p2 < 0 {
+		q2 = 1 - p2*p2
+	}
+	p2 = min1(c0 + t*(h2*q2))
+	q1 := 1 - cc
+	if p2*p2 > cc {
+		q1 = 1 - p2*p2
+	}
+	if q1 < 0 {
+		q1 = 0
+	}
+	q2 = 1.0
+	if c0 > 0 {
+		q2 = 1 - cc
+	} else if p2 < 0 {
+		q2 = 1 - p2*p2
 	}
 	base := m.f0 + t*c0
 	half := t * t / 2
@@ -981,6 +984,14 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 		hi = h
 	}
 	return lo, hi
+}
+
+// min1 returns p, or 1 when p > 1.
+func min1(p float64) float64 {
+	if p > 1 {
+		return 1
+	}
+	return p
 }
 
 // Bounds is Bracket on the null model's values, the form a scoring pass
