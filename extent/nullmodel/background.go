@@ -158,12 +158,13 @@ func (r *Row) Set(dist []float64, weights []int64) {
 	}
 	r.bin, r.w = r.bin[:n], r.w[:n]
 	r.pa, r.ph, r.pl, r.pm = r.pa[:n+1], r.ph[:n+1], r.pl[:n+1], r.pm[:n+1]
-	r.constW = n > 0 && n < maxConstRow && weights[0] >= 0
+	one := n > 0 && n < maxConstRow && weights[0] >= 0
 	for _, w := range weights[:n] {
-		r.constW = r.constW && w == weights[0]
+		one = one && w == weights[0]
 	}
+	r.constW = one
 	var area int64
-	if r.constW {
+	if one {
 		w := weights[0]
 		r.w0 = uint64(w)
 		var sum uint64
@@ -211,7 +212,7 @@ func (r *Row) Set(dist []float64, weights []int64) {
 func roundMM(d float64) uint64 {
 	x := d * 1000
 	if !(x < 1<<52) {
-		return uint64(math.Round(x))
+		return uint64(x) // uint64(math.Round(x)): x is whole (or not finite)
 	}
 	t := int64(x) // one instruction, unlike uint64(x); x < 2^52
 	if x-float64(t) >= 0.5 {
