@@ -601,20 +601,17 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 	// One site (the common case): its chord is the shortest, and the
 	// square of its z difference is the row's.
 	one, p0 := len(b.csites) == 1, b.csites[0].p
+	var ls, hs [SuperTile]float64
 	for y := y1; y < y2; y++ {
 		ar, zr := b.rowA[y], b.rowZ[y]
 		dz2 := (zr - p0[2]) * (zr - p0[2])
 		row := y * b.w
 		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
 		colC, colS := b.colC[x1:x2], b.colS[x1:x2]
-		var need []uint64
-		if b.need != nil {
-			need = b.need[row+x1 : row+x2]
-		}
-		for x := range lo {
-			if need != nil && need[x] == 0 {
-				continue
-			}
+		ls, hs := ls[:len(lo)], hs[:len(lo)]
+		// First every cell's chord bracket, needed or not: a loop with no
+		// branch to mispredict, so that the square roots overlap.
+		for x := range ls {
 			px, py := ar*colC[x], ar*colS[x]
 			var d2 float64
 			if one {
@@ -641,20 +638,27 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 			// chordBracket(d).
 			d := math.Sqrt(d2)
 			margin := 1e-3 + 1e-9*d
-			l, h := d-margin, math.Inf(1)
-			if l < 0 {
-				l = 0
-			}
+			l, h := max(d-margin, 0), math.Inf(1)
 			if d <= maxChord {
 				k := kappa * d / 2
 				u := k * k
 				h = d*(1+u*(1.0/6+u*0.1)) + margin
 			}
-			if h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+			ls[x], hs[x] = l, h
+		}
+		var need []uint64
+		if b.need != nil {
+			need = b.need[row+x1 : row+x2]
+		}
+		for x, l := range ls {
+			if need != nil && need[x] == 0 {
+				continue
+			}
+			if h := hs[x]; h-l <= 2*BracketTol*l && b.sameBins(l, h) {
 				lo[x], hi[x] = l, h
 				continue
 			}
-			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: l, hi: h})
+			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: l, hi: hs[x]})
 		}
 	}
 	return false
