@@ -138,9 +138,7 @@ type virtualSource struct {
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
 // member or has no value.
 func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
-	need := s.need[:w*h]
-	clear(need)
-	s.markNeed(x0, y0, w, h, need)
+	need := s.markNeed(x0, y0, w, h)
 	if s.bf == nil {
 		s.v.field.Fill(x0, y0, w, h, need, buf[:w*h])
 		return nil
@@ -175,11 +173,30 @@ func (s *virtualSource) shownValues(n int) []float64 {
 	return s.shown[:n]
 }
 
-// markNeed sets need[y*w+x] for every cell of the block at (x0, y0) of w x
-// h cells that lies in some member. A group whose runs in a row are those
-// of the group before (often the case: several extents covering the row)
-// is not walked again.
-func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
+// markNeed returns the need words of the block at (x0, y0) of w x h
+// cells: need[y*w+x] set for every cell that lies in some member, or nil
+// when every cell does because one member holds each whole row (the inside
+// of large extents; nil means every cell to Fill and Bounds, and saves
+// their test per cell). A group whose runs in a row are those of the group
+// before (often the case: several extents covering the row) is not walked
+// again.
+func (s *virtualSource) markNeed(x0, y0, w, h int) []uint64 {
+	full := true
+	for y := 0; y < h && full; y++ {
+		full = false
+		for _, k := range s.outer {
+			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
+			if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
+				full = true
+				break
+			}
+		}
+	}
+	if full {
+		return nil
+	}
+	need := s.need[:w*h]
+	clear(need)
 	for y := range h {
 		s.prev = s.prev[:0]
 		for g, k := range s.outer {
@@ -195,6 +212,7 @@ func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 			s.prev = append(s.prev[:0], runs...)
 		}
 	}
+	return need
 }
 
 // exactExtremes computes exactly (lo = hi = buf = Fill's value) every cell of
