@@ -595,9 +595,6 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 			return true
 		}
 	}
-	// The loops below are chordBracket and sameBins written out: the
-	// common case of a cell is a few multiplications and comparisons.
-	kappa := chordKappa
 	// One site (the common case): its chord is the shortest, and the
 	// square of its z difference is the row's.
 	one, p0 := len(b.csites) == 1, b.csites[0].p
@@ -635,16 +632,7 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 					d2 = min(d2, dx*dx+dy*dy+dz*dz)
 				}
 			}
-			// chordBracket(d).
-			d := math.Sqrt(d2)
-			margin := 1e-3 + 1e-9*d
-			l, h := max(d-margin, 0), math.Inf(1)
-			if d <= maxChord {
-				k := kappa * d / 2
-				u := k * k
-				h = d*(1+u*(1.0/6+u*0.1)) + margin
-			}
-			ls[x], hs[x] = l, h
+			ls[x], hs[x] = chordBracket(math.Sqrt(d2))
 		}
 		var need []uint64
 		if b.need != nil {
@@ -695,12 +683,10 @@ const maxChord = 6e6
 //	d <= s <= (2/kappa) asin(kappa d/2) <= d (1 + u/6 + u^2/10),  u = (kappa d/2)^2,
 //
 // widened by the margin of taylorBracket, and no upper bound (+Inf) above
-// maxChord.
+// maxChord. It is small enough to be inlined in the chord loop.
 func chordBracket(d float64) (lo, hi float64) {
 	margin := 1e-3 + 1e-9*d
-	if lo = d - margin; lo < 0 {
-		lo = 0
-	}
+	lo = max(d-margin, 0)
 	if !(d <= maxChord) {
 		return lo, math.Inf(1)
 	}
