@@ -128,13 +128,25 @@ func (b *Background) Add(k int, dist []float64, weights []int64) {
 // bin and weight, and the prefix sums of the weights and of weight x
 // distance in whole millimetres (128 bits), computed once for all the
 // extents the cells are added to, so that a run's sums are two
-// differences.
+// differences. When every cell has the same weight w (rows of a
+// latitude-longitude or equal-area grid) the prefix sums are those of the
+// millimetres alone, and a run's sum is w times their difference: the same
+// integer, as long as a row's millimetres add up below 2^64 (rows shorter
+// than maxConstRow of distances below 2^27 m, the histogram's range;
+// other rows take the 128-bit sums).
 type Row struct {
 	bin    []int32
 	w      []int64
 	pa     []int64  // pa[i]: sum of the weights of cells < i
 	ph, pl []uint64 // sum of weight x mm of cells < i, high and low words (mod 2^128)
+	pm     []uint64 // one weight w: sum of mm of cells < i
+	constW bool
+	w0     uint64
 }
+
+// maxConstRow is the length below which a row of one weight and
+// distances below 2^27 m sums its millimetres (each below 2^37) in 64 bits.
+const maxConstRow = 1 << 26
 
 // Set prepares the cells: distance dist[i] (m; NaN: the cell is skipped)
 // and area weight weights[i] >= 0.
@@ -142,11 +154,38 @@ func (r *Row) Set(dist []float64, weights []int64) {
 	n := len(dist)
 	if cap(r.bin) < n || cap(r.pa) < n+1 {
 		r.bin, r.w = make([]int32, n), make([]int64, n)
-		r.pa, r.ph, r.pl = make([]int64, n+1), make([]uint64, n+1), make([]uint64, n+1)
+		r.pa, r.ph, r.pl, r.pm = make([]int64, n+1), make([]uint64, n+1), make([]uint64, n+1), make([]uint64, n+1)
 	}
 	r.bin, r.w = r.bin[:n], r.w[:n]
-	r.pa, r.ph, r.pl = r.pa[:n+1], r.ph[:n+1], r.pl[:n+1]
+	r.pa, r.ph, r.pl, r.pm = r.pa[:n+1], r.ph[:n+1], r.pl[:n+1], r.pm[:n+1]
+	one := n > 0 && n < maxConstRow && weights[0] >= 0
+	for _, w := range weights[:n] {
+		one = one && w == weights[0]
+	}
+	r.constW = one
 	var area int64
+	if one {
+		w := weights[0]
+		r.w0 = uint64(w)
+		var sum uint64
+		far := false
+		for i, d := range dist {
+			r.pa[i], r.pm[i] = area, sum
+			if math.IsNaN(d) {
+				r.bin[i], r.w[i] = -1, 0
+				continue
+			}
+			far = far || !(d < 1<<27)
+			r.bin[i], r.w[i] = int32(distBin(d)), w
+			sum += roundMM(d)
+			area += w
+		}
+		r.pa[n], r.pm[n] = area, sum
+		if !far {
+			return
+		}
+		r.constW, area = false, 0
+	}
 	var sumHi, sumLo uint64
 	for i, d := range dist {
 		r.pa[i], r.ph[i], r.pl[i] = area, sumHi, sumLo
@@ -173,13 +212,13 @@ func (r *Row) Set(dist []float64, weights []int64) {
 func roundMM(d float64) uint64 {
 	x := d * 1000
 	if !(x < 1<<52) {
-		return uint64(math.Round(x))
+		return uint64(x) // uint64(math.Round(x)): x is whole (or not finite)
 	}
-	t := uint64(x)
+	t := int64(x) // one instruction, unlike uint64(x); x < 2^52
 	if x-float64(t) >= 0.5 {
 		t++
 	}
-	return t
+	return uint64(t)
 }
 
 // Tally is a locked partial sum of a Background, for adding rows.
@@ -298,8 +337,14 @@ func (t Tally) runSums(e *bgExtent, r *Row, lo, hi int) {
 	// The run's sums from the prefix sums (128-bit differences wrap as the
 	// sums do), then its cells' histogram bins.
 	e.area += r.pa[hi] - r.pa[lo]
-	dl, borrow := bits.Sub64(r.pl[hi], r.pl[lo], 0)
-	dh, _ := bits.Sub64(r.ph[hi], r.ph[lo], borrow)
+	var dh, dl uint64
+	if r.constW {
+		dh, dl = bits.Mul64(r.pm[hi]-r.pm[lo], r.w0)
+	} else {
+		var borrow uint64
+		dl, borrow = bits.Sub64(r.pl[hi], r.pl[lo], 0)
+		dh, _ = bits.Sub64(r.ph[hi], r.ph[lo], borrow)
+	}
 	var carry uint64
 	e.sumLo, carry = bits.Add64(e.sumLo, dl, 0)
 	e.sumHi, _ = bits.Add64(e.sumHi, dh, carry)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"math/big"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -225,6 +226,61 @@ func TestRoundMM(t *testing.T) {
 	for _, d := range ds {
 		if got, want := roundMM(d), uint64(math.Round(d*1000)); got != want {
 			t.Fatalf("roundMM(%v) = %d, want %d", d, got, want)
+		}
+	}
+}
+
+// TestRowOneWeight checks the sums of rows whose cells share one weight
+// (Row's 64-bit millimetre sums, multiplied by the weight per run) against
+// the 128-bit sum of weight x millimetres computed cell by cell with
+// math/big: random distances from 2.7 m to 440 km with a NaN, weights up
+// to 2^40 (so that the sums need both words), whole rows and runs of them,
+// and a row holding a distance of 2^28 m, which takes the 128-bit prefix
+// sums (its millimetres could pass 2^64 in a long row).
+func TestRowOneWeight(t *testing.T) {
+	r := rand.New(rand.NewPCG(31, 32))
+	var bg Background
+	want := [2]*big.Int{new(big.Int), new(big.Int)}
+	area := [2]int64{}
+	for row := range 40 {
+		n := 300
+		dist := make([]float64, n)
+		wts := make([]int64, n)
+		w := r.Int64N(1 << 40)
+		for i := range n {
+			dist[i], wts[i] = math.Exp(1+12*r.Float64()), w
+		}
+		dist[row%n] = math.NaN()
+		if row == 7 {
+			dist[100] = 1 << 28
+		}
+		var rw Row
+		rw.Set(dist, wts)
+		if rw.constW != (row != 7) {
+			t.Fatalf("row %d: one-weight sums %v", row, rw.constW)
+		}
+		a, z := r.IntN(n/2), n/2+r.IntN(n/2)
+		tl := bg.Tally()
+		tl.Add(0, &rw, 0, n)
+		tl.Add(1, &rw, a, z)
+		tl.Done()
+		for k, run := range [2][2]int{{0, n}, {a, z}} {
+			for _, d := range dist[run[0]:run[1]] {
+				if math.IsNaN(d) {
+					continue
+				}
+				p := new(big.Int).SetUint64(roundMM(d))
+				want[k].Add(want[k], p.Mul(p, big.NewInt(w)))
+				area[k] += w
+			}
+		}
+	}
+	for k := range 2 {
+		e := bg.get(k)
+		got := new(big.Int).Lsh(new(big.Int).SetUint64(e.sumHi), 64)
+		got.Add(got, new(big.Int).SetUint64(e.sumLo))
+		if got.Cmp(want[k]) != 0 || e.area != area[k] {
+			t.Errorf("extent %d: sum %v area %d, cell by cell %v and %d", k, got, e.area, want[k], area[k])
 		}
 	}
 }

@@ -276,6 +276,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	if cap(sc.pending) < n {
 		sc.pending = make([]bool, n)
 	}
+	clear(sc.pending[:n])
 	if cap(sc.clo) < n {
 		sc.clo, sc.chi = make([]float64, n), make([]float64, n)
 	}
@@ -287,7 +288,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	}
 	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
-		cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+		left: sc.left[:0], cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
 	}
@@ -299,6 +300,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 			b.super(sr, scol)
 		}
 	}
+	sc.left = b.left
 }
 
 func floorDiv(a, b int) int {
@@ -322,8 +324,9 @@ type bracketer struct {
 	cands    []int
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
 	measured []anchorSite
-	pending  []bool    // per block cell: left to the patches
-	clo, chi []float64 // per block cell: the chord bracket
+	left     []leftCell // the super-tile's cells the chords leave to the anchors
+	pending  []bool     // per block cell: left to the patches
+	clo, chi []float64  // per block cell: the chord bracket of a pending cell
 	// ECEF of the block's cells: (rowA[y] colC[x], rowA[y] colS[x], rowZ[y])
 	rowA, rowZ []float64
 	colC, colS []float64
@@ -341,6 +344,7 @@ type bracketer struct {
 type anchorSite struct {
 	k          int
 	f0, inv    float64 // distance and its inverse
+	margin     float64 // taylorBracket's margin, 1 mm + 1e-9 f0
 	sz, cz     float64
 	taylor     bool
 	slat, slon float64
@@ -366,16 +370,11 @@ func (b *bracketer) needed(c, r int) (int, bool) {
 // super brackets the cells of the block in super-tile (sr, scol).
 func (b *bracketer) super(sr, scol int) {
 	r0, c0 := sr*SuperTile, scol*SuperTile
-	any := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h) && !any; r++ {
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			if _, ok := b.needed(c, r); ok {
-				any = true
-				break
-			}
-		}
-	}
-	if !any {
+	// The super-tile's cells in the block: rows [y1, y2), columns [x1, x2)
+	// of the block.
+	y1, y2 := max(r0, b.y0)-b.y0, min(r0+SuperTile, b.y0+b.h)-b.y0
+	x1, x2 := max(c0, b.x0)-b.x0, min(c0+SuperTile, b.x0+b.w)-b.x0
+	if b.need != nil && !b.anyNeeded(y1, y2, x1, x2) {
 		return
 	}
 	ll, ix := b.ll, b.f.ix
@@ -399,7 +398,8 @@ func (b *bracketer) super(sr, scol int) {
 		return
 	}
 	// First the chord brackets: no geodesic.
-	if !b.chords(r0, c0, clat, clon, rho) {
+	skip := b.chords(y1, y2, x1, x2, clat, clon, rho)
+	if !skip && len(b.left) == 0 {
 		return
 	}
 	// Then the super-tile's centre as the anchor of the cells left.
@@ -422,27 +422,14 @@ func (b *bracketer) super(sr, scol int) {
 		b.measured = keep
 	}
 	sortSites(b.measured)
+	// j0 is the stencil entry of block cell (0, 0).
+	j0 := (b.y0-cr+SuperTile/2)*SuperTile + b.x0 - cc + SuperTile/2
 	pend := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			i, ok := b.needed(c, r)
-			if !ok || !b.pending[i] {
-				continue
-			}
-			j := (r-cr+SuperTile/2)*SuperTile + c - cc + SuperTile/2
-			ok, w := b.cell(i, big, j)
-			if ok {
-				b.pending[i] = false
-				continue
-			}
-			if w <= exactWidth*b.binW {
-				// A narrow bracket across a bin edge: a patch's anchor
-				// would cost about the geodesics of measuring the cell.
-				b.exact(i, b.measured, big, j, ll.lat(r), ll.lon(c))
-				b.pending[i] = false
-				continue
-			}
-			pend = true
+	if skip {
+		pend = b.centreRows(y1, y2, x1, x2, big, j0)
+	} else {
+		for _, p := range b.left {
+			pend = b.centreCell(p.i, big, j0+int(p.y)*SuperTile+int(p.x), p.lo, p.hi) || pend
 		}
 	}
 	if !pend {
@@ -455,13 +442,118 @@ func (b *bracketer) super(sr, scol int) {
 	}
 }
 
-// chords brackets every needed cell of the block in super-tile (r0, c0)
-// (centre (clat, clon), every cell centre within rho of it) from its ECEF
-// chords to the candidate sites (chordBracket; the minimum over the sites
-// of both ends), keeps the bracket in clo and chi, sets lo and hi of the
-// cells whose bracket is narrow enough and inside one bin, marks the
-// others pending, and reports whether any is.
-func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
+// anyNeeded reports whether a cell of block rows [y1, y2) and columns
+// [x1, x2) is needed.
+func (b *bracketer) anyNeeded(y1, y2, x1, x2 int) bool {
+	for y := y1; y < y2; y++ {
+		for _, v := range b.need[y*b.w+x1 : y*b.w+x2] {
+			if v != 0 {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// centreRows brackets every needed cell of block rows [y1, y2) and
+// columns [x1, x2), a super-tile whose chords were skipped, from the sites
+// measured at its centre (j0: the entry of st, its stencil, of block cell
+// (0, 0)), as centreCell with the chord bracket (0, +Inf), which changes
+// no anchor bracket (their lower ends are >= +0, never NaN). One measured
+// site (the common case) has its loop of its own.
+func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
+	pend := false
+	var one *anchorSite
+	if len(b.measured) == 1 {
+		one = &b.measured[0]
+	}
+	for y := y1; y < y2; y++ {
+		row, jr := y*b.w, j0+y*SuperTile
+		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
+		ts, sa, ca := st.t[jr+x1:jr+x2], st.sa[jr+x1:jr+x2], st.ca[jr+x1:jr+x2]
+		var need []uint64
+		if b.need != nil {
+			need = b.need[row+x1 : row+x2]
+		}
+		for x := range lo {
+			if need != nil && need[x] == 0 {
+				continue
+			}
+			var l, h float64
+			if one != nil {
+				// anchorBracket of one site.
+				l1, h1 := taylorBracket(one, ts[x], sa[x], ca[x])
+				l, h = math.Inf(1), math.Inf(1)
+				if l1 < l {
+					l = l1
+				}
+				if h1 < h {
+					h = h1
+				}
+			} else {
+				l, h = b.anchorBracket(st, jr+x1+x)
+			}
+			if h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+				lo[x], hi[x] = l, h
+				continue
+			}
+			pend = b.centreFailed(row+x1+x, st, jr+x1+x, l, h, 0, math.Inf(1)) || pend
+		}
+	}
+	return pend
+}
+
+// centreCell brackets block cell i from the sites measured at the
+// super-tile's centre (entry j of its stencil st) and its chord bracket
+// [clo, chi]; when that fails it computes the cell exactly or leaves it to
+// its patch (see centreFailed), and then reports true.
+func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64) bool {
+	lo, hi := b.anchorBracket(st, j)
+	// Both brackets hold the distance: keep their intersection.
+	lo, hi = max(lo, clo), min(hi, chi)
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return false
+	}
+	return b.centreFailed(i, st, j, lo, hi, clo, chi)
+}
+
+// centreFailed takes block cell i (entry j of stencil st) whose bracket
+// [lo, hi] from the super-tile's centre failed: it computes it exactly
+// when the bracket is narrow, or leaves it to its patch (pending, with its
+// chord bracket [clo, chi] kept) and then reports true.
+func (b *bracketer) centreFailed(i int, st *stencil, j int, lo, hi, clo, chi float64) bool {
+	if hi-lo <= exactWidth*b.binW {
+		// A narrow bracket across a bin edge: a patch's anchor would cost
+		// about the geodesics of measuring the cell.
+		r, c := b.y0+i/b.w, b.x0+i%b.w
+		b.exact(i, b.measured, st, j, b.ll.lat(r), b.ll.lon(c))
+		return false
+	}
+	b.pending[i] = true
+	b.clo[i], b.chi[i] = clo, chi
+	return true
+}
+
+// leftCell is a cell that the chords leave to the anchors: its index in
+// the block, its column and row in the block and its chord bracket.
+type leftCell struct {
+	i      int
+	x, y   int32
+	lo, hi float64
+}
+
+// chords brackets every needed cell of the block in rows [y1, y2) and
+// columns [x1, x2) of the block, those of a super-tile (centre (clat,
+// clon), every cell centre within rho of it), from its ECEF chords to the
+// candidate sites (chordBracket; the minimum over the sites of both
+// ends), sets lo and hi of the cells whose bracket is narrow enough and
+// inside one bin, and lists the others in b.left with their bracket. It
+// reports true when it skips the chords (see below): then every needed
+// cell is left to the anchors, with the chord bracket (0, +Inf), and
+// b.left is not filled.
+func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
+	b.left = b.left[:0]
 	pc := ecef(clat, clon)
 	b.csites = b.csites[:0]
 	for _, k := range b.cands {
@@ -499,55 +591,64 @@ func (b *bracketer) chords(r0, c0 int, clat, clon, rho float64) bool {
 	// the anchors at once with no chord bracket (0, +Inf).
 	if dmin := b.csites[0].cc - rho - 1; dmin > 0 {
 		if lo, hi := chordBracket(dmin); hi-lo >= chordSkip*b.binW {
-			for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-				for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-					if i, ok := b.needed(c, r); ok {
-						b.clo[i], b.chi[i] = 0, math.Inf(1)
-						b.pending[i] = true
-					}
-				}
-			}
 			return true
 		}
 	}
-	pend := false
-	for r := max(r0, b.y0); r < min(r0+SuperTile, b.y0+b.h); r++ {
-		y := r - b.y0
+	// One site (the common case): its chord is the shortest, and the
+	// square of its z difference is the row's.
+	one, p0 := len(b.csites) == 1, b.csites[0].p
+	var ls, hs [SuperTile]float64
+	for y := y1; y < y2; y++ {
 		ar, zr := b.rowA[y], b.rowZ[y]
-		for c := max(c0, b.x0); c < min(c0+SuperTile, b.x0+b.w); c++ {
-			i, ok := b.needed(c, r)
-			if !ok {
-				continue
-			}
-			x := c - b.x0
-			px, py := ar*b.colC[x], ar*b.colS[x]
-			// Both ends of chordBracket grow with the chord, so the
-			// minimum over the sites of each end is that of the shortest
-			// chord.
-			d2 := math.Inf(1)
-			for q := range b.csites {
-				st := &b.csites[q]
-				// The chord from the cell is at least cc - rho: once that
-				// exceeds the shortest chord so far (by 1 m for rounding),
-				// this site and the farther ones are farther still.
-				if g := st.cc - rho - 1; g > 0 && g*g > d2 {
-					break
+		dz2 := (zr - p0[2]) * (zr - p0[2])
+		row := y * b.w
+		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
+		colC, colS := b.colC[x1:x2], b.colS[x1:x2]
+		ls, hs := ls[:len(lo)], hs[:len(lo)]
+		// First every cell's chord bracket, needed or not: a loop with no
+		// branch to mispredict, so that the square roots overlap.
+		for x := range ls {
+			px, py := ar*colC[x], ar*colS[x]
+			var d2 float64
+			if one {
+				dx, dy := px-p0[0], py-p0[1]
+				d2 = dx*dx + dy*dy + dz2
+			} else {
+				// Both ends of chordBracket grow with the chord, so the
+				// minimum over the sites of each end is that of the
+				// shortest chord.
+				d2 = math.Inf(1)
+				for q := range b.csites {
+					st := &b.csites[q]
+					// The chord from the cell is at least cc - rho: once
+					// that exceeds the shortest chord so far (by 1 m for
+					// rounding), this site and the farther ones are farther
+					// still.
+					if g := st.cc - rho - 1; g > 0 && g*g > d2 {
+						break
+					}
+					dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
+					d2 = min(d2, dx*dx+dy*dy+dz*dz)
 				}
-				dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
-				d2 = min(d2, dx*dx+dy*dy+dz*dz)
 			}
-			lo, hi := chordBracket(math.Sqrt(d2))
-			b.clo[i], b.chi[i] = lo, hi
-			if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
-				b.lo[i], b.hi[i] = lo, hi
-				b.pending[i] = false
+			ls[x], hs[x] = chordBracket(math.Sqrt(d2))
+		}
+		var need []uint64
+		if b.need != nil {
+			need = b.need[row+x1 : row+x2]
+		}
+		for x, l := range ls {
+			if need != nil && need[x] == 0 {
 				continue
 			}
-			b.pending[i] = true
-			pend = true
+			if h := hs[x]; h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+				lo[x], hi[x] = l, h
+				continue
+			}
+			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: l, hi: hs[x]})
 		}
 	}
-	return pend
+	return false
 }
 
 // exactWidth is the width, in floor bins, of the widest bracket from a
@@ -581,12 +682,10 @@ const maxChord = 6e6
 //	d <= s <= (2/kappa) asin(kappa d/2) <= d (1 + u/6 + u^2/10),  u = (kappa d/2)^2,
 //
 // widened by the margin of taylorBracket, and no upper bound (+Inf) above
-// maxChord.
+// maxChord. It is small enough to be inlined in the chord loop.
 func chordBracket(d float64) (lo, hi float64) {
 	margin := 1e-3 + 1e-9*d
-	if lo = d - margin; lo < 0 {
-		lo = 0
-	}
+	lo = max(d-margin, 0)
 	if !(d <= maxChord) {
 		return lo, math.Inf(1)
 	}
@@ -603,7 +702,7 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 	slat, slon := b.f.ix.Site(k)
 	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
 	sz, cz := math.Sincos(az * math.Pi / 180)
-	m := anchorSite{k: k, f0: f0, inv: 1 / f0, sz: sz, cz: cz, slat: slat, slon: slon}
+	m := anchorSite{k: k, f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, sz: sz, cz: cz, slat: slat, slon: slon}
 	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
 		m.taylor = true
 	}
@@ -611,11 +710,26 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 }
 
 // cell brackets block cell i from the measured sites, at stencil entry j
-// of st, and reports whether the bracket is narrow enough and inside one
-// bin (then lo[i] and hi[i] are set).
-func (b *bracketer) cell(i int, st *stencil, j int) (bool, float64) {
+// of st, and its chord bracket [clo[i], chi[i]], and reports whether the
+// bracket is narrow enough and inside one bin (then lo[i] and hi[i] are
+// set).
+func (b *bracketer) cell(i int, st *stencil, j int) bool {
+	lo, hi := b.anchorBracket(st, j)
+	// Both brackets hold the distance: keep their intersection.
+	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
+	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+		b.lo[i], b.hi[i] = lo, hi
+		return true
+	}
+	return false
+}
+
+// anchorBracket returns the bracket of the cell at stencil entry j of st
+// from the measured sites: the minimum over them of both ends of
+// taylorBracket.
+func (b *bracketer) anchorBracket(st *stencil, j int) (lo, hi float64) {
 	t, su, cu := st.t[j], st.sa[j], st.ca[j]
-	lo, hi := math.Inf(1), math.Inf(1)
+	lo, hi = math.Inf(1), math.Inf(1)
 	for q := range b.measured {
 		// Sites are in increasing order of f0: once f0 - t > hi, this site
 		// and the farther ones have both ends above hi, and change
@@ -631,13 +745,7 @@ func (b *bracketer) cell(i int, st *stencil, j int) (bool, float64) {
 			hi = h1
 		}
 	}
-	// Both brackets hold the distance: keep their intersection.
-	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
-	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
-		b.lo[i], b.hi[i] = lo, hi
-		return true, hi - lo
-	}
-	return false, hi - lo
+	return lo, hi
 }
 
 // exactRange computes the cells of the block in the global rectangle of
@@ -730,7 +838,7 @@ func (b *bracketer) patch(pr, pc int, clat, clon float64) {
 				continue
 			}
 			j := (dr+patchK)*patchP + dc + patchK
-			if ok, _ := b.cell(i, st, j); ok {
+			if b.cell(i, st, j) {
 				continue
 			}
 			b.exact(i, b.measured, st, j, ll.lat(ra+dr), ll.lon(ca+dc))
@@ -781,9 +889,14 @@ func (b *bracketer) sameBins(lo, hi float64) bool {
 	}
 	u1, u2 := 0-hi, 0-lo
 	// The floor bin k of u1 (floorBin; u2 >= u1 is in a bin >= k): u2
-	// shares it iff u2 s < k + 1, exact since s is a power of two.
+	// shares it iff u2 s < k + 1, exact since s is a power of two. k is
+	// floor(x) by truncation (exact: |x| < 2^63 for any distance), but
+	// for the sign of a zero, which k + 1 does not see.
 	x, y := u1*b.scale, u2*b.scale
-	k := math.Floor(x)
+	k := float64(int64(x))
+	if k > x {
+		k--
+	}
 	if x == 0 && u1 < 0 {
 		k = -1 // underflow: bin -1
 	}
@@ -805,8 +918,8 @@ func (b *bracketer) sameBins(lo, hi float64) bool {
 func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// The 1-Lipschitz bound, widened by the margin so that a bracket is
 	// never a single value (only cells measured with Distance are).
-	margin := 1e-3 + 1e-9*m.f0
-	lo, hi = math.Max(0, m.f0-t-margin), m.f0+t+margin
+	margin := m.margin
+	lo, hi = max(0, m.f0-t-margin), m.f0+t+margin
 	if !m.taylor {
 		return lo, hi
 	}
@@ -823,31 +936,33 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// 1/(f0-t) = 1/(f0 (1-x)) <= (1 + x + 2x^2)/f0; the other terms of
 	// hLoFast use the larger f0+t, which only lowers them further.
 	x := t * m.inv
-	h1 := (1-x)*m.inv - (m.f0+t)*kLo1 - (m.f0+t)*(m.f0+t)*(m.f0+t)*kLo3
+	ft := m.f0 + t
+	h1 := (1-x)*m.inv - ft*kLo1 - ft*ft*ft*kLo3
 	h2 := (1 + x + 2*x*x) * m.inv
 	// f'' in [h1 q1, h2 q2], q the range of 1 - f'^2 with f' in [c0, p2];
-	// twice, the second time with p2 from the first upper bound on f''.
-	b := h2
-	var q1, q2 float64
-	for range 2 {
-		p2 := c0 + t*b
-		if p2 > 1 {
-			p2 = 1
-		}
-		q1 = 1 - c0*c0
-		if p2*p2 > c0*c0 {
-			q1 = 1 - p2*p2
-		}
-		if q1 < 0 {
-			q1 = 0
-		}
-		q2 = 1.0
-		if c0 > 0 {
-			q2 = 1 - c0*c0
-		} else if p2 < 0 {
-			q2 = 1 - p2*p2
-		}
-		b = h2 * q2
+	// twice, the second time with p2 from the first upper bound on f''
+	// (the first time only q2 is needed).
+	cc := c0 * c0
+	p2 := min1(c0 + t*h2)
+	q2 := 1.0
+	if c0 > 0 {
+		q2 = 1 - cc
+	} else if p2 < 0 {
+		q2 = 1 - p2*p2
+	}
+	p2 = min1(c0 + t*(h2*q2))
+	q1 := 1 - cc
+	if p2*p2 > cc {
+		q1 = 1 - p2*p2
+	}
+	if q1 < 0 {
+		q1 = 0
+	}
+	q2 = 1.0
+	if c0 > 0 {
+		q2 = 1 - cc
+	} else if p2 < 0 {
+		q2 = 1 - p2*p2
 	}
 	base := m.f0 + t*c0
 	half := t * t / 2
@@ -858,6 +973,14 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 		hi = h
 	}
 	return lo, hi
+}
+
+// min1 returns p, or 1 when p > 1.
+func min1(p float64) float64 {
+	if p > 1 {
+		return 1
+	}
+	return p
 }
 
 // Bounds is Bracket on the null model's values, the form a scoring pass

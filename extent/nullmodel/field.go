@@ -43,6 +43,7 @@ type scratch struct {
 	lb         []float64
 	pending    []bool
 	clo, chi   []float64 // Bracket's chord brackets
+	left       []leftCell
 	rowA, rowZ []float64 // Bracket's ECEF rows and columns
 	colC, colS []float64
 }

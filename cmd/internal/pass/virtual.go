@@ -129,18 +129,17 @@ type virtualSource struct {
 	bf           BoundedField
 	bins         Binner
 	lo, hi       []float64
-	shown        []float64 // the midpoints of the cells' own bounds
-	minHi, maxLo []float64 // per member: smallest upper and largest lower bound in the block
-	rowLo, rowHi []float64 // per row and member: smallest lower and largest upper bound
+	shown        []float64     // the midpoints of the cells' own bounds
+	minHi, maxLo []float64     // per member: smallest upper and largest lower bound in the block
+	rowLo, rowHi []float64     // per row and member: smallest lower and largest upper bound
+	whole        []rowExtremes // per block row: the extremes of all its cells
 	one          [1]float64
 }
 
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
 // member or has no value.
 func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
-	need := s.need[:w*h]
-	clear(need)
-	s.markNeed(x0, y0, w, h, need)
+	need := s.markNeed(x0, y0, w, h)
 	if s.bf == nil {
 		s.v.field.Fill(x0, y0, w, h, need, buf[:w*h])
 		return nil
@@ -154,17 +153,47 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	// in its rows), the bounds on the cell alone.
 	// The block's values are the same midpoints but at the cells
 	// exactExtremes computes, which it writes into buf.
+	// The same loop keeps each row's extremes of the bounds (see
+	// exactExtremes).
 	shown, buf := s.shown[:w*h], buf[:w*h]
-	for i := range shown {
-		m := lo[i]
-		if m != hi[i] {
-			m = (m + hi[i]) / 2
+	if cap(s.whole) < h {
+		s.whole = make([]rowExtremes, h)
+	}
+	whole := s.whole[:h]
+	for y := range h {
+		e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
+		los, his := lo[y*w:(y+1)*w], hi[y*w:(y+1)*w]
+		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
+		for i, l := range los {
+			u := his[i]
+			m := l
+			if m != u {
+				m = (m + u) / 2
+			}
+			shown[i], buf[i] = m, m
+			// NaN compares false: cells with no value are left out.
+			if u < e.minHi {
+				e.minHi = u
+			}
+			if l > e.maxLo {
+				e.maxLo = l
+			}
+			if l < e.minLo {
+				e.minLo = l
+			}
+			if u > e.maxHi {
+				e.maxHi = u
+			}
 		}
-		shown[i], buf[i] = m, m
+		whole[y] = e
 	}
 	s.exactExtremes(x0, y0, w, h, lo, hi, buf)
 	return nil
 }
+
+// rowExtremes are the smallest and largest lower and upper bounds of the
+// cells of a run (NaN cells left out; infinite when there is none).
+type rowExtremes struct{ minHi, maxLo, minLo, maxHi float64 }
 
 // shownValues returns the values of the last block for Options.Rows and
 // the preview (see ReadBlock), nil when they are the block's values.
@@ -175,11 +204,30 @@ func (s *virtualSource) shownValues(n int) []float64 {
 	return s.shown[:n]
 }
 
-// markNeed sets need[y*w+x] for every cell of the block at (x0, y0) of w x
-// h cells that lies in some member. A group whose runs in a row are those
-// of the group before (often the case: several extents covering the row)
-// is not walked again.
-func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
+// markNeed returns the need words of the block at (x0, y0) of w x h
+// cells: need[y*w+x] set for every cell that lies in some member, or nil
+// when every cell does because one member holds each whole row (the inside
+// of large extents; nil means every cell to Fill and Bounds, and saves
+// their test per cell). A group whose runs in a row are those of the group
+// before (often the case: several extents covering the row) is not walked
+// again.
+func (s *virtualSource) markNeed(x0, y0, w, h int) []uint64 {
+	full := true
+	for y := 0; y < h && full; y++ {
+		full = false
+		for _, k := range s.outer {
+			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
+			if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
+				full = true
+				break
+			}
+		}
+	}
+	if full {
+		return nil
+	}
+	need := s.need[:w*h]
+	clear(need)
 	for y := range h {
 		s.prev = s.prev[:0]
 		for g, k := range s.outer {
@@ -195,15 +243,18 @@ func (s *virtualSource) markNeed(x0, y0, w, h int, need []uint64) {
 			s.prev = append(s.prev[:0], runs...)
 		}
 	}
+	return need
 }
 
 // exactExtremes computes exactly (lo = hi = buf = Fill's value) every cell of
 // the block that may hold the smallest or the largest value of a member
 // it is added to (see Virtual). A first walk finds each member's smallest
 // upper and largest lower bound in the block and, per row, its smallest
-// lower and largest upper bound (reusing the previous member's figures
-// when its runs in the row are the same: minima and maxima of the same
-// cells); the second walk visits only the rows that can hold such a cell.
+// lower and largest upper bound (those ReadBlock kept of the whole row
+// when the member holds all of it, and the previous member's figures when
+// its runs in the row are the same: minima and maxima of the same cells,
+// in the same order); the second walk visits only the rows that can hold
+// such a cell.
 func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 	nm := len(s.minHi)
 	for k := range s.minHi {
@@ -221,7 +272,13 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 			inner := -1
 			for _, k := range seq {
 				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
-				if first || !slices.Equal(runs, s.prev) {
+				if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
+					// The whole row: its extremes from ReadBlock's walk.
+					e := s.whole[y]
+					mn, mx, rl, rh = e.minHi, e.maxLo, e.minLo, e.maxHi
+					s.prev = append(s.prev[:0], runs...)
+					first = false
+				} else if first || !slices.Equal(runs, s.prev) {
 					mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
 					for j := 0; j < len(runs); j += 2 {
 						a, b := y*w+int(runs[j])-x0, y*w+int(runs[j+1])-x0
