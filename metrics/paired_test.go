@@ -291,10 +291,11 @@ func TestEvaluatorMatchesScore(t *testing.T) {
 
 // TestCompareMemoMatchesDirect: comparisons that take a side's resampled
 // scores from its memo (every presence of that side common: nested
-// extents, models on one extent) give exactly, bit for bit, what
-// evaluating every resample again gives, for nested, equal and partly
-// overlapping sets of test presences and for two models, in any order of
-// calls.
+// extents, models on one extent) and the counts from the table of the
+// draws give exactly, bit for bit, what drawing and evaluating every
+// resample again gives, for nested, equal and partly overlapping sets of
+// test presences and for two models, in any order of calls; so does
+// BootSD.
 func TestCompareMemoMatchesDirect(t *testing.T) {
 	r := rand.New(rand.NewPCG(41, 42))
 	c := randomCase(r, 300, 80, 30, 200)
@@ -329,14 +330,19 @@ func TestCompareMemoMatchesDirect(t *testing.T) {
 	type side struct{ m, k int }
 	pairs := [][2]side{{{0, 1}, {0, 0}}, {{0, 0}, {0, 1}}, {{0, 0}, {1, 0}}, {{0, 1}, {0, 2}}, {{1, 2}, {0, 0}}, {{0, 1}, {1, 1}}, {{1, 0}, {1, 0}}}
 	want := make([]Comparison, len(pairs))
-	useOwnMemo = false
+	wantSD := make([]float64, len(pairs))
+	useOwnMemo, useDrawTable = false, false
 	for i, p := range pairs {
 		var err error
 		if want[i], err = Compare(mk(p[0].m, p[0].k), mk(p[1].m, p[1].k), d); err != nil {
 			t.Fatal(err)
 		}
+		wantSD[i], _ = mk(p[0].m, p[0].k).BootSD(d)
 	}
-	useOwnMemo = true
+	useOwnMemo, useDrawTable = true, true
+	if d.table() == nil {
+		t.Fatal("the draws have no table: the test compares nothing")
+	}
 	shared := map[side]*Evaluator{}
 	ev := func(sd side) *Evaluator {
 		if shared[sd] == nil {
@@ -353,6 +359,9 @@ func TestCompareMemoMatchesDirect(t *testing.T) {
 			}
 			if !reflect.DeepEqual(got, want[i]) {
 				t.Errorf("pair %d, round %d: with the memo\n%+v\nwithout\n%+v", i, rep, got, want[i])
+			}
+			if sd, _ := ev(pairs[i][0]).BootSD(d); sd != wantSD[i] {
+				t.Errorf("pair %d, round %d: BootSD %v from the table, %v drawing again", i, rep, sd, wantSD[i])
 			}
 			nonzero = nonzero || got.Boyce.SD != 0 || got.PartialROC[0].SD != 0 || got.Omission[0].SD != 0
 		}
