@@ -159,10 +159,11 @@ func (m *ownMemo) load(r, nE, nT int, v *Values) {
 // evalScratch is the working memory of one eval call, reused across
 // resamples.
 type evalScratch struct {
-	groups, before, start []int
-	keys                []uint64
-	pos                 []int32
-	ratio, ranks        []float64
+	groups, before   []int
+	keys, sortedKeys []uint64
+	pos, sortedPos   []int32
+	start, bucket    []int32
+	ratio, ranks     []float64
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -383,23 +384,28 @@ func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
 // they are those of Ranks whatever the sort.
 func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 	n := len(v)
-	zeros := 0
+	ranks := resize(sc.ranks, n)
+	sc.ranks = ranks
+	// The positive values' bits and positions, in the order of v; the
+	// zeros take ranks 1 to zeros.
+	keys, pos := resize(sc.keys, n), resize(sc.pos, n)
+	sc.keys, sc.pos = keys, pos
+	m := 0
 	lo, hi := uint64(math.MaxUint64), uint64(0)
-	for _, x := range v {
+	for i, x := range v {
 		k := math.Float64bits(x)
 		if k>>63 != 0 || x != x { // negative, -0 or NaN
 			r, _ := Ranks(v)
 			sc.ranks = append(sc.ranks[:0], r...)
 			return sc.ranks
 		}
-		if k == 0 {
-			zeros++
-			continue
+		keys[m], pos[m] = k, int32(i)
+		if k != 0 {
+			m++
+			lo, hi = min(lo, k), max(hi, k)
 		}
-		lo, hi = min(lo, k), max(hi, k)
 	}
-	ranks := resize(sc.ranks, n)
-	sc.ranks = ranks
+	zeros := n - m
 	if zeros > 0 {
 		zr := float64(zeros-1)/2 + 1
 		for i, x := range v {
@@ -408,52 +414,50 @@ func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 			}
 		}
 	}
-	m := n - zeros
 	if m == 0 {
 		return ranks
 	}
-	// Bucket b of m holds the keys k with floor((k - lo) * (m-1) / (hi -
-	// lo)) = b, computed in float64 (monotone in k).
+	// Bucket b of nb holds the keys k with floor((k - lo) (nb-1) / (hi -
+	// lo)) = b, computed in float64 (non-decreasing in k; k - lo < 2^63).
+	nb := 2 * m
 	scale := 0.0
 	if hi > lo {
-		scale = float64(m-1) / float64(hi-lo)
+		scale = float64(nb-1) / float64(int64(hi-lo))
 	}
-	start := resize(sc.start, m+1)
-	sc.start = start
-	for _, x := range v {
-		if k := math.Float64bits(x); k != 0 {
-			start[min(int(float64(k-lo)*scale), m-1)+1]++
-		}
+	start, bucket := resize(sc.start, nb+1), resize(sc.bucket, m)
+	sc.start, sc.bucket = start, bucket
+	for i, k := range keys[:m] {
+		b := min(int32(float64(int64(k-lo))*scale), int32(nb-1))
+		bucket[i] = b
+		start[b+1]++
 	}
-	for b := 1; b <= m; b++ {
+	for b := 1; b <= nb; b++ {
 		start[b] += start[b-1]
 	}
-	keys, pos := resize(sc.keys, m), resize(sc.pos, m)
-	sc.keys, sc.pos = keys, pos
-	for i, x := range v {
-		if k := math.Float64bits(x); k != 0 {
-			b := min(int(float64(k-lo)*scale), m-1)
-			keys[start[b]], pos[start[b]] = k, int32(i)
-			start[b]++
-		}
+	sk, sp := resize(sc.sortedKeys, m), resize(sc.sortedPos, m)
+	sc.sortedKeys, sc.sortedPos = sk, sp
+	for i, b := range bucket {
+		o := start[b]
+		sk[o], sp[o] = keys[i], pos[i]
+		start[b] = o + 1
 	}
 	for i := 1; i < m; i++ {
-		k, p := keys[i], pos[i]
+		k, p := sk[i], sp[i]
 		j := i
-		for j > 0 && keys[j-1] > k {
-			keys[j], pos[j] = keys[j-1], pos[j-1]
+		for j > 0 && sk[j-1] > k {
+			sk[j], sp[j] = sk[j-1], sp[j-1]
 			j--
 		}
-		keys[j], pos[j] = k, p
+		sk[j], sp[j] = k, p
 	}
 	for i := 0; i < m; {
 		j := i
-		for j+1 < m && keys[j+1] == keys[i] {
+		for j+1 < m && sk[j+1] == sk[i] {
 			j++
 		}
 		avg := float64(zeros+i+zeros+j)/2 + 1
 		for k := i; k <= j; k++ {
-			ranks[pos[k]] = avg
+			ranks[sp[k]] = avg
 		}
 		i = j + 1
 	}
@@ -506,14 +510,14 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 	for b := 0; b < d.B; b++ {
 		rs.gather(b, e.ids, c)
 		// The AUC of eval: the mean placement over the drawn copies,
-		// summed in the same order.
+		// summed in the same order. eval skips the presences not drawn;
+		// adding their 0 x placement (+0: placements are finite and >= 0)
+		// to a sum that starts at +0 leaves its bits as they are.
 		r := 0
 		var sa float64
 		for k, c := range c {
-			if c != 0 {
-				r += int(c)
-				sa += float64(c) * e.v[k]
-			}
+			r += int(c)
+			sa += float64(c) * e.v[k]
 		}
 		if r > 0 {
 			aucs = append(aucs, sa/float64(r))
