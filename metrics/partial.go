@@ -148,21 +148,31 @@ func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
 	tau := snapCount((1 - e) * rf)
 	// cross is the first group with presences whose running count yb
 	// reaches tau, ya the count before it; last the last group with
-	// presences.
-	cross, last, ya := -1, -1, 0
-	for g, yb := len(counts)-1, r; g >= 0; g-- {
-		c := counts[g]
-		if c == 0 {
-			continue
+	// presences. Walking down from last, the count before a group without
+	// presences is its yb, which reaches tau, so only the crossing group
+	// stops the walk.
+	last := len(counts) - 1
+	for last >= 0 && counts[last] == 0 {
+		last--
+	}
+	cross, ya := -1, 0
+	if last >= 0 && float64(r) >= tau {
+		g, yb := last, r
+		for ; g >= 0; g-- {
+			a := yb - counts[g]
+			if !(float64(a) >= tau) {
+				break
+			}
+			yb = a
 		}
-		if last < 0 {
-			last = g
+		if g < 0 { // tau <= 0: the first group with presences crosses
+			g = 0
+			for counts[g] == 0 {
+				g++
+			}
+			yb = counts[g]
 		}
-		if !(float64(yb) >= tau) {
-			break
-		}
-		cross, ya = g, yb-c
-		yb -= c
+		cross, ya = g, yb-counts[g]
 	}
 	var res partialResult
 	var model float64

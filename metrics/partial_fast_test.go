@@ -60,7 +60,8 @@ func (p *presences) partialAreaReference(counts []int, r int, e float64) partial
 // TestPartialAreaFromCrossing: partialArea, which finds the crossing from
 // the end, gives bit for bit what the walk from the start gives, on
 // random counts (zero groups, ties of the full set, crossings on a tie, on
-// a vertical step, at x = 1) for E from 0 to 0.99, and on r = 0.
+// a vertical step, at x = 1) for E from 0 to 1 (Settings allows 0 < E
+// < 1; E = 1 crosses at the first group drawn), and on r = 0.
 func TestPartialAreaFromCrossing(t *testing.T) {
 	r := rand.New(rand.NewPCG(21, 22))
 	same := func(a, b partialResult) bool {
@@ -92,7 +93,7 @@ func TestPartialAreaFromCrossing(t *testing.T) {
 			}
 			n += counts[g]
 		}
-		for _, e := range []float64{0, 0.01, 0.05, 0.1, 0.2, 0.5, 0.99} {
+		for _, e := range []float64{0, 0.01, 0.05, 0.1, 0.2, 0.5, 0.99, 1} {
 			got, want := p.partialArea(counts, n, e), p.partialAreaReference(counts, n, e)
 			if !same(got, want) {
 				t.Fatalf("trial %d, E %g, counts %v: %+v, want %+v", trial, e, counts, got, want)
