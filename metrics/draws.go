@@ -62,8 +62,9 @@ func (t *drawTable) row(b int) []uint8 { return t.counts[b*t.n : (b+1)*t.n] }
 // drawTables holds the table of each Draws in use, weakly: a table lives
 // while an evaluator (or a Compare under way) holds it, so a run's table
 // goes with the run's evaluators. untabled marks a Draws with a count
-// above 255 (for N >= 256 a chance below 1e-500 per resample), drawn
-// again wherever it is used.
+// above 255 (impossible for N < 256; for larger N, within the table's
+// size, a chance of about 1e-500 per resample: the Poisson(1) tail),
+// drawn again wherever it is used.
 var drawTables struct {
 	sync.Mutex
 	m map[Draws]tableEntry
