@@ -223,3 +223,129 @@ func BenchmarkLocateRow(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/(float64(b.N)*256), "ns/cell")
 }
+
+// pairedRun is a run's paired analysis in miniature: models x extents
+// evaluators on nested extents of one set of test presences, with the
+// comparisons the pipeline makes (every extent minus the base extent per
+// model, the two models per extent, each model minus the last, "null",
+// model per extent).
+type pairedRun struct {
+	evals [][]*Evaluator // [model][extent]
+	base  int
+	d     Draws
+}
+
+// newPairedRun builds the evaluators of models x extents: extent k holds
+// the presences and cells whose uniform tag lies below its share (from
+// 0.25 to 1), the base extent is the one nearest 0.7.
+func newPairedRun(b *testing.B, models, extents, presences int) *pairedRun {
+	r := rand.New(rand.NewPCG(7, 7))
+	ptag := make([]float64, presences)
+	for i := range ptag {
+		ptag[i] = r.Float64()
+	}
+	const cells = 1 << 15
+	ctag := make([]float64, cells)
+	for i := range ctag {
+		ctag[i] = r.Float64()
+	}
+	pr := &pairedRun{d: Draws{N: presences, B: 1000, Seed: 3}}
+	best := 2.0
+	for m := 0; m < models; m++ {
+		test := make([]float64, presences)
+		for i := range test {
+			test[i] = math.Round((1-r.Float64()*r.Float64())*2000) / 2000 // some ties
+		}
+		l, err := NewLayout(test, 1024)
+		if err != nil {
+			b.Fatal(err)
+		}
+		cv := make([]float64, cells)
+		for i := range cv {
+			cv[i] = r.Float64()
+		}
+		var row []*Evaluator
+		for k := 0; k < extents; k++ {
+			share := 0.25 + 0.75*float64(k)/float64(max(1, extents-1))
+			if m == 0 && math.Abs(share-0.7) < best {
+				best, pr.base = math.Abs(share-0.7), k
+			}
+			a := l.NewAccumulator()
+			for i, v := range cv {
+				if ctag[i] < share {
+					a.Add(v, int64(1000+i%7))
+				}
+			}
+			var tv []float64
+			var ids []int
+			for i, v := range test {
+				if ptag[i] < share {
+					tv, ids = append(tv, v), append(ids, i)
+				}
+			}
+			ev, err := NewEvaluator(a, tv, ids, []float64{tv[len(tv)/10], tv[len(tv)/2]}, Settings{E: []float64{0.05, 0.1}})
+			if err != nil {
+				b.Fatal(err)
+			}
+			row = append(row, ev)
+		}
+		pr.evals = append(pr.evals, row)
+	}
+	return pr
+}
+
+// run makes every comparison once, starting with empty memos, and each
+// evaluator's BootSD, as a run's scoring and analysis phases do.
+func (pr *pairedRun) run(b *testing.B) {
+	for _, row := range pr.evals {
+		for _, ev := range row {
+			ev.own.done = false
+			ev.BootSD(pr.d)
+		}
+	}
+	cmp := func(x, y *Evaluator) {
+		if _, err := Compare(x, y, pr.d); err != nil {
+			b.Fatal(err)
+		}
+	}
+	for _, row := range pr.evals {
+		for k, ev := range row {
+			if k != pr.base {
+				cmp(ev, row[pr.base])
+			}
+		}
+	}
+	last := len(pr.evals) - 1
+	for k := range pr.evals[0] {
+		for m := 0; m < last; m++ {
+			for o := m + 1; o < last; o++ {
+				cmp(pr.evals[m][k], pr.evals[o][k])
+			}
+			cmp(pr.evals[m][k], pr.evals[last][k])
+		}
+	}
+}
+
+// BenchmarkPairedRun times a run's paired analysis (every comparison, the
+// memos of resampled scores and every BootSD) with 500 test presences, B
+// = 1000, three models (the last one standing for the null) by the number
+// of extents; cpu-ns/op is the thread's CPU time (one goroutine), immune
+// to time-slicing by other processes.
+func BenchmarkPairedRun(b *testing.B) {
+	for _, extents := range []int{20, 60} {
+		b.Run(fmt.Sprintf("extents=%d", extents), func(b *testing.B) {
+			pr := newPairedRun(b, 3, extents, 500)
+			lockThread()
+			defer unlockThread()
+			b.ReportAllocs()
+			b.ResetTimer()
+			cpu0 := threadCPU()
+			for i := 0; i < b.N; i++ {
+				pr.run(b)
+			}
+			if cpu := threadCPU() - cpu0; cpu > 0 {
+				b.ReportMetric(float64(cpu.Nanoseconds())/float64(b.N), "cpu-ns/op")
+			}
+		})
+	}
+}

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/rand/v2"
 	"slices"
 	"sync"
 )
@@ -65,25 +64,6 @@ func PairedPlacements(a, b []float64) Interval {
 	return iv
 }
 
-// Draws is one set of B full-size resamples, with replacement, of the N test
-// presences of a run (indexed 0..N-1). Resample b draws N indices with
-// math/rand/v2 PCG seeded with (Seed, b): it depends only on the seed, N
-// and b, so every model and extent sees the same index sets.
-type Draws struct {
-	N, B int
-	Seed uint64
-}
-
-// fill sets counts[g] to the number of times test presence g is drawn in
-// resample b. counts must have length N.
-func (d Draws) fill(b int, counts []int32) {
-	clear(counts)
-	rng := rand.New(rand.NewPCG(d.Seed, uint64(b)))
-	for k := 0; k < d.N; k++ {
-		counts[rng.IntN(d.N)]++
-	}
-}
-
 // Evaluator scores one model on one extent for any multiset of its test
 // presences: placements (for AUC), partial ROC ratios, omission rates at
 // fixed threshold values and the Boyce index, all from quantities fixed by
@@ -96,12 +76,14 @@ type Evaluator struct {
 	p     *presences
 	group []int // group of presence k in p
 	es    []float64
-	// below[t][k]: presence k lies below threshold t.
-	below [][]bool
-	// Boyce: used windows and, per presence, the range of windows that
-	// hold its value (first > last when none).
-	win         []boyceWindow
-	first, last []int
+	// th[t] is the layout index of threshold t; the presences below it
+	// are those of groups cut[t] onwards (groups run in descending value).
+	th, cut []int
+	// Boyce: used windows and, per window, the groups whose value it
+	// holds, groups winLo[w] to winHi[w]-1 (the groups run in descending
+	// value and a window is an interval of values).
+	win          []boyceWindow
+	winLo, winHi []int
 	// The window midpoints' side of the Boyce index's Spearman correlation,
 	// fixed per evaluator: their average ranks centred on their mean, and
 	// the sum of squares, summed in window order as Spearman does.
@@ -122,9 +104,12 @@ var useOwnMemo = true
 // the number of presences drawn (n[r]). 8(nE+nT+1)+nE+9 bytes per
 // resample.
 type ownMemo struct {
-	mu          sync.Mutex
-	d           Draws
-	done        bool
+	mu   sync.Mutex
+	d    Draws
+	done bool
+	// tab keeps the Draws' table of counts alive while the evaluator
+	// lives (see Draws.table).
+	tab         *drawTable
 	ratio, om   []float64
 	boyce       []float64
 	ok, boyceOK []bool
@@ -144,21 +129,18 @@ func (e *Evaluator) ownResamples(d Draws) *ownMemo {
 	if m.done && m.d == d {
 		return m
 	}
-	nE, nT := len(e.es), len(e.below)
+	nE, nT := len(e.es), len(e.cut)
 	m.d, m.done = d, true
 	m.ratio, m.ok = make([]float64, d.B*nE), make([]bool, d.B*nE)
 	m.om = make([]float64, d.B*nT)
 	m.boyce, m.boyceOK, m.n = make([]float64, d.B), make([]bool, d.B), make([]int, d.B)
-	global := make([]int32, d.N)
-	c := make([]int32, len(e.ids))
+	rs := newResampler(d)
+	m.tab = rs.tab
+	groups := make([]int, len(e.p.j))
 	var v Values
 	var sc evalScratch
 	for r := 0; r < d.B; r++ {
-		d.fill(r, global)
-		for k, id := range e.ids {
-			c[k] = global[id]
-		}
-		e.evalInto(c, &v, &sc)
+		e.evalGroups(groups, rs.groups(r, e.ids, e.group, groups), &v, &sc)
 		copy(m.ratio[r*nE:], v.Ratio)
 		copy(m.ok[r*nE:], v.RatioOK)
 		copy(m.om[r*nT:], v.Omission)
@@ -177,9 +159,11 @@ func (m *ownMemo) load(r, nE, nT int, v *Values) {
 // evalScratch is the working memory of one eval call, reused across
 // resamples.
 type evalScratch struct {
-	groups, diff            []int
-	keys                    []uint64
-	ratio, groupRank, ranks []float64
+	groups, before   []int
+	keys, sortedKeys []uint64
+	pos, sortedPos   []int32
+	start, bucket    []int32
+	ratio, ranks     []float64
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -238,25 +222,26 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 	for k, j := range sIdx {
 		e.group[k] = gOf[j]
 	}
+	e.th = thIdx
 	for _, tj := range thIdx {
-		b := make([]bool, n)
-		for k, j := range sIdx {
-			b[k] = j < tj
+		cut := len(e.p.j)
+		for cut > 0 && e.p.j[cut-1] < tj {
+			cut--
 		}
-		e.below = append(e.below, b)
+		e.cut = append(e.cut, cut)
 	}
 	e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
-	e.first, e.last = make([]int, n), make([]int, n)
-	for k, i := range order {
-		v := test[i]
-		f, lst := len(e.win), -1
-		for w, bw := range e.win {
-			if v >= bw.lo && v <= bw.hi {
-				f = min(f, w)
-				lst = w
-			}
+	e.winLo, e.winHi = make([]int, len(e.win)), make([]int, len(e.win))
+	for w, bw := range e.win {
+		g := 0
+		for g < len(e.p.j) && c.values[e.p.j[g]] > bw.hi {
+			g++
 		}
-		e.first[k], e.last[k] = f, lst
+		e.winLo[w] = g
+		for g < len(e.p.j) && c.values[e.p.j[g]] >= bw.lo {
+			g++
+		}
+		e.winHi[w] = g
 	}
 	mid := make([]float64, len(e.win))
 	for w, bw := range e.win {
@@ -292,68 +277,76 @@ type Values struct {
 // eval scores the multiset with count[k] copies of presence k.
 func (e *Evaluator) eval(count []int32) Values {
 	var out Values
-	e.evalInto(count, &out, &evalScratch{})
+	var sc evalScratch
+	r := 0
+	var sa, su float64
+	for k, c := range count {
+		if c == 0 {
+			continue
+		}
+		r += int(c)
+		sa += float64(c) * e.v[k]
+		su += float64(c) * e.vu[k]
+	}
+	if r > 0 {
+		out.AUC, out.AUCUnweighted = sa/float64(r), su/float64(r)
+	}
+	e.evalInto(count, e.group, &out, &sc)
 	return out
 }
 
-// evalInto is eval writing into out (its slices reused when long enough)
-// with scratch memory sc.
-func (e *Evaluator) evalInto(count []int32, out *Values, sc *evalScratch) {
+// evalInto scores the multiset with count[k] copies of a presence of
+// group group[k] (evalGroups).
+func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalScratch) {
+	groups := resize(sc.groups, len(e.p.j))
+	sc.groups = groups
+	r := 0
+	for k, c := range count {
+		r += int(c)
+		groups[group[k]] += int(c)
+	}
+	e.evalGroups(groups, r, out, sc)
+}
+
+// evalGroups scores the multiset with groups[g] presences of group g, r
+// in all, all but the AUCs (left as they are: the resamples of Compare do
+// not use them), writing into out (its slices reused when long enough)
+// with scratch memory sc. Every score but the AUCs depends on the
+// presences only through their groups (their values): the partial ROC
+// ratios by partialArea, the omission rates through the presences of the
+// groups below each threshold, the Boyce index through those of the
+// groups each window holds. The counts are integers, so adding them up by
+// group gives exactly what adding them up by presence does.
+func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch) {
 	out.Ratio = resize(out.Ratio, len(e.es))
 	out.RatioOK = resize(out.RatioOK, len(e.es))
-	out.Omission = resize(out.Omission, len(e.below))
-	out.AUC, out.AUCUnweighted, out.Boyce, out.BoyceOK = 0, 0, 0, false
-	r := 0
-	for _, c := range count {
-		r += int(c)
-	}
+	out.Omission = resize(out.Omission, len(e.cut))
+	out.Boyce, out.BoyceOK = 0, false
 	out.N = r
 	if r == 0 {
 		return
 	}
 	rf := float64(r)
-	var sa, su float64
-	groups := resize(sc.groups, len(e.p.j))
-	sc.groups = groups
-	for k, c := range count {
-		if c == 0 {
-			continue
-		}
-		sa += float64(c) * e.v[k]
-		su += float64(c) * e.vu[k]
-		groups[e.group[k]] += int(c)
-	}
-	out.AUC, out.AUCUnweighted = sa/rf, su/rf
 	for i, ev := range e.es {
 		pr := e.p.partialArea(groups, r, ev)
 		if pr.how == crossFormed {
 			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
 		}
 	}
-	for t, b := range e.below {
-		om := 0
-		for k, c := range count {
-			if b[k] {
-				om += int(c)
-			}
-		}
-		out.Omission[t] = float64(om) / rf
+	// before[g]: the presences of the groups before g.
+	before := resize(sc.before, len(groups)+1)
+	sc.before = before
+	for g, c := range groups {
+		before[g+1] = before[g] + c
+	}
+	for t, cut := range e.cut {
+		out.Omission[t] = float64(r-before[cut]) / rf
 	}
 	if len(e.win) >= 3 {
-		diff := resize(sc.diff, len(e.win)+1)
-		sc.diff = diff
-		for k, c := range count {
-			if c == 0 || e.first[k] > e.last[k] {
-				continue
-			}
-			diff[e.first[k]] += int(c)
-			diff[e.last[k]+1] -= int(c)
-		}
 		ratio := resize(sc.ratio, len(e.win))
 		sc.ratio = ratio
-		run := 0
 		for w, bw := range e.win {
-			run += diff[w]
+			run := before[e.winHi[w]] - before[e.winLo[w]]
 			ratio[w] = (float64(run) / rf) / bw.share
 		}
 		out.Boyce, out.BoyceOK = e.boyceRho(ratio, sc)
@@ -379,16 +372,26 @@ func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
 	return math.Max(-1, math.Min(1, rho)), true
 }
 
-// averageRanksInto returns the 1-based average ranks of v, as
-// Ranks does (ties share the mean of their positions, computed with
-// the same expression), in sc.ranks, using sc's keys and groupRank as
-// scratch. For values >= +0 (the Boyce P/E ratios) it sorts their bit
-// patterns, which order as the values do, and finds each value's tie group
-// by bisection; any other value falls back to Ranks.
+// averageRanksInto returns the 1-based average ranks of v, as Ranks does
+// (ties share the mean of their positions, computed with the same
+// expression), in sc.ranks, using sc's other slices as scratch. For values
+// >= +0 (the Boyce P/E ratios) it orders their bit patterns, which order as
+// the values do: the zeros (windows without a drawn presence) first, then
+// the positive values by a bucket sort (each value's bucket is a
+// non-decreasing function of its bits, so the buckets are in order) and an
+// insertion sort that puts each bucket in order (a few values each). Any
+// other value falls back to Ranks. The ranks depend only on the values, so
+// they are those of Ranks whatever the sort.
 func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 	n := len(v)
-	keys := resize(sc.keys, n)
-	sc.keys = keys
+	ranks := resize(sc.ranks, n)
+	sc.ranks = ranks
+	// The positive values' bits and positions, in the order of v; the
+	// zeros take ranks 1 to zeros.
+	keys, pos := resize(sc.keys, n), resize(sc.pos, n)
+	sc.keys, sc.pos = keys, pos
+	m := 0
+	lo, hi := uint64(math.MaxUint64), uint64(0)
 	for i, x := range v {
 		k := math.Float64bits(x)
 		if k>>63 != 0 || x != x { // negative, -0 or NaN
@@ -396,34 +399,67 @@ func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 			sc.ranks = append(sc.ranks[:0], r...)
 			return sc.ranks
 		}
-		keys[i] = k
-	}
-	slices.Sort(keys)
-	// groupRank[i]: the average rank of the tie group that starts at i.
-	groupRank := resize(sc.groupRank, n)
-	sc.groupRank = groupRank
-	for i := 0; i < n; {
-		j := i
-		for j+1 < n && keys[j+1] == keys[i] {
-			j++
+		keys[m], pos[m] = k, int32(i)
+		if k != 0 {
+			m++
+			lo, hi = min(lo, k), max(hi, k)
 		}
-		groupRank[i] = float64(i+j)/2 + 1
-		i = j + 1
 	}
-	ranks := resize(sc.ranks, n)
-	sc.ranks = ranks
-	for i, x := range v {
-		k := math.Float64bits(x)
-		lo, hi := 0, n // first position of k in keys
-		for lo < hi {
-			m := int(uint(lo+hi) >> 1)
-			if keys[m] < k {
-				lo = m + 1
-			} else {
-				hi = m
+	zeros := n - m
+	if zeros > 0 {
+		zr := float64(zeros-1)/2 + 1
+		for i, x := range v {
+			if x == 0 {
+				ranks[i] = zr
 			}
 		}
-		ranks[i] = groupRank[lo]
+	}
+	if m == 0 {
+		return ranks
+	}
+	// Bucket b of nb holds the keys k with floor((k - lo) (nb-1) / (hi -
+	// lo)) = b, computed in float64 (non-decreasing in k; k - lo < 2^63).
+	nb := 2 * m
+	scale := 0.0
+	if hi > lo {
+		scale = float64(nb-1) / float64(int64(hi-lo))
+	}
+	start, bucket := resize(sc.start, nb+1), resize(sc.bucket, m)
+	sc.start, sc.bucket = start, bucket
+	for i, k := range keys[:m] {
+		b := min(int32(float64(int64(k-lo))*scale), int32(nb-1))
+		bucket[i] = b
+		start[b+1]++
+	}
+	for b := 1; b <= nb; b++ {
+		start[b] += start[b-1]
+	}
+	sk, sp := resize(sc.sortedKeys, m), resize(sc.sortedPos, m)
+	sc.sortedKeys, sc.sortedPos = sk, sp
+	for i, b := range bucket {
+		o := start[b]
+		sk[o], sp[o] = keys[i], pos[i]
+		start[b] = o + 1
+	}
+	for i := 1; i < m; i++ {
+		k, p := sk[i], sp[i]
+		j := i
+		for j > 0 && sk[j-1] > k {
+			sk[j], sp[j] = sk[j-1], sp[j-1]
+			j--
+		}
+		sk[j], sp[j] = k, p
+	}
+	for i := 0; i < m; {
+		j := i
+		for j+1 < m && sk[j+1] == sk[i] {
+			j++
+		}
+		avg := float64(zeros+i+zeros+j)/2 + 1
+		for k := i; k <= j; k++ {
+			ranks[sp[k]] = avg
+		}
+		i = j + 1
 	}
 	return ranks
 }
@@ -465,19 +501,23 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 			return 0, 0 // ids outside the draws: nothing to resample
 		}
 	}
-	global := make([]int32, d.N)
-	var aucs []float64
+	rs := newResampler(d)
+	e.own.mu.Lock()
+	e.own.tab = rs.tab
+	e.own.mu.Unlock()
+	c := make([]int32, len(e.ids))
+	aucs := make([]float64, 0, d.B)
 	for b := 0; b < d.B; b++ {
-		d.fill(b, global)
+		rs.gather(b, e.ids, c)
 		// The AUC of eval: the mean placement over the drawn copies,
-		// summed in the same order.
+		// summed in the same order. eval skips the presences not drawn;
+		// adding their 0 x placement (+0: placements are finite and >= 0)
+		// to a sum that starts at +0 leaves its bits as they are.
 		r := 0
 		var sa float64
-		for k, id := range e.ids {
-			if c := global[id]; c != 0 {
-				r += int(c)
-				sa += float64(c) * e.v[k]
-			}
+		for k, c := range c {
+			r += int(c)
+			sa += float64(c) * e.v[k]
 		}
 		if r > 0 {
 			aucs = append(aucs, sa/float64(r))
@@ -532,7 +572,7 @@ type Comparison struct {
 // Percentile intervals of paired bootstrap differences: Efron &
 // Tibshirani (1993) An Introduction to the Bootstrap, ch. 13.
 func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
-	if len(a.es) != len(b.es) || len(a.below) != len(b.below) {
+	if len(a.es) != len(b.es) || len(a.cut) != len(b.cut) {
 		return Comparison{}, errors.New("metrics: Compare: evaluators made with different settings or thresholds")
 	}
 	for _, id := range a.ids {
@@ -578,10 +618,16 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		ca[pa[k]], cb[pb[k]] = 1, 1
 	}
 	fa, fb := a.eval(ca), b.eval(cb)
-	nE, nT := len(a.es), len(a.below)
+	nE, nT := len(a.es), len(a.cut)
 	cmp.PartialROC = make([]Resampled, nE)
 	cmp.Omission = make([]Resampled, nT)
 	diffs := make([][]float64, nE+nT+1)
+	if len(pa) > 0 {
+		all := make([]float64, (nE+nT+1)*d.B)
+		for i := range diffs {
+			diffs[i] = all[i*d.B : i*d.B : (i+1)*d.B]
+		}
+	}
 	for i := 0; i < nE; i++ {
 		cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
 	}
@@ -589,11 +635,11 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		cmp.Omission[t] = Resampled{A: fa.Omission[t], B: fb.Omission[t], Defined: fa.N > 0, Resamples: d.B}
 	}
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
-	global := make([]int32, d.N)
 	if len(pa) > 0 {
 		// A side whose presences are all common scores the resamples of its
 		// own memo (the same numbers, computed once per evaluator and
-		// shared by all its comparisons).
+		// shared by all its comparisons). The other side is scored on the
+		// counts of the common presences: ga and gb are their groups.
 		var ma, mb *ownMemo
 		if len(pa) == len(a.ids) && useOwnMemo {
 			ma = a.ownResamples(d)
@@ -601,25 +647,29 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		if len(pb) == len(b.ids) && useOwnMemo {
 			mb = b.ownResamples(d)
 		}
+		var rs *resampler
+		common := make([]int, len(pa))
+		ga, gb := make([]int, len(pa)), make([]int, len(pa))
+		if ma == nil || mb == nil {
+			rs = newResampler(d)
+			for k := range pa {
+				common[k] = a.ids[pa[k]]
+				ga[k], gb[k] = a.group[pa[k]], b.group[pb[k]]
+			}
+		}
+		groupsA, groupsB := make([]int, len(a.p.j)), make([]int, len(b.p.j))
 		var ra, rb Values
 		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
-			if ma == nil || mb == nil {
-				d.fill(r, global)
-				for k := range pa {
-					c := global[a.ids[pa[k]]]
-					ca[pa[k]], cb[pb[k]] = c, c
-				}
-			}
 			if ma != nil {
 				ma.load(r, nE, nT, &ra)
 			} else {
-				a.evalInto(ca, &ra, &sa)
+				a.evalGroups(groupsA, rs.groups(r, common, ga, groupsA), &ra, &sa)
 			}
 			if mb != nil {
 				mb.load(r, nE, nT, &rb)
 			} else {
-				b.evalInto(cb, &rb, &sb)
+				b.evalGroups(groupsB, rs.groups(r, common, gb, groupsB), &rb, &sb)
 			}
 			for i := 0; i < nE; i++ {
 				if ra.RatioOK[i] && rb.RatioOK[i] {

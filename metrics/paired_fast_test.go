@@ -5,17 +5,20 @@ import (
 	"math"
 	"math/rand/v2"
 	"reflect"
+	"slices"
 	"testing"
 )
 
 // evalReference is Evaluator.eval as it was written before the fast path
-// (fresh slices per call, the Boyce index through boyceIndex and
+// (fresh slices per call, counts per presence rather than per group,
+// omission and Boyce windows read from each presence's value, the partial
+// ROC by a walk over every group, the Boyce index through boyceIndex and
 // Spearman): the fast path must give the same bits.
 func (e *Evaluator) evalReference(count []int32) Values {
 	var out Values
 	out.Ratio = make([]float64, len(e.es))
 	out.RatioOK = make([]bool, len(e.es))
-	out.Omission = make([]float64, len(e.below))
+	out.Omission = make([]float64, len(e.th))
 	r := 0
 	for _, c := range count {
 		r += int(c)
@@ -37,15 +40,15 @@ func (e *Evaluator) evalReference(count []int32) Values {
 	}
 	out.AUC, out.AUCUnweighted = sa/rf, su/rf
 	for i, ev := range e.es {
-		pr := e.p.partialArea(groups, r, ev)
+		pr := e.p.partialAreaReference(groups, r, ev)
 		if pr.how == crossFormed {
 			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
 		}
 	}
-	for t, b := range e.below {
+	for t, tj := range e.th {
 		om := 0
 		for k, c := range count {
-			if b[k] {
+			if e.p.j[e.group[k]] < tj {
 				om += int(c)
 			}
 		}
@@ -54,11 +57,19 @@ func (e *Evaluator) evalReference(count []int32) Values {
 	if len(e.win) >= 3 {
 		diff := make([]int, len(e.win)+1)
 		for k, c := range count {
-			if c == 0 || e.first[k] > e.last[k] {
+			v := e.p.c.values[e.p.j[e.group[k]]]
+			first, last := len(e.win), -1
+			for w, bw := range e.win {
+				if v >= bw.lo && v <= bw.hi {
+					first = min(first, w)
+					last = w
+				}
+			}
+			if c == 0 || first > last {
 				continue
 			}
-			diff[e.first[k]] += int(c)
-			diff[e.last[k]+1] -= int(c)
+			diff[first] += int(c)
+			diff[last+1] -= int(c)
 		}
 		ratio := make([]float64, len(e.win))
 		mid := make([]float64, len(e.win))
@@ -73,24 +84,49 @@ func (e *Evaluator) evalReference(count []int32) Values {
 	return out
 }
 
-// TestAverageRanksInto: the sort-and-search ranks equal Ranks' on
-// values with many ties, few ties and none, zeros, and (through the
-// fallback) a negative value.
+// TestAverageRanksInto: the bucket-sort ranks equal Ranks' on values with
+// many ties, few ties and none, zeros, in random order and in runs
+// (ascending, descending, rising and falling waves), with one value far
+// above the rest, with one positive value, on no value, and (through the
+// fallback) with a negative value.
 func TestAverageRanksInto(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
 	var sc evalScratch
-	for trial := 0; trial < 500; trial++ {
+	if got := averageRanksInto(nil, &sc); len(got) != 0 {
+		t.Errorf("ranks of no value: %v", got)
+	}
+	for trial := 0; trial < 1000; trial++ {
 		n := 1 + r.IntN(120)
 		levels := 1 + r.IntN(2*n)
 		v := make([]float64, n)
 		for i := range v {
 			v[i] = float64(r.IntN(levels)) / 7
 		}
-		switch trial % 5 {
+		switch trial % 7 {
 		case 0:
 			v[0] = 0 // zeros among positives
 		case 1:
 			v[0] = -v[0] - 1 // a negative value: the fallback
+		case 2:
+			slices.Sort(v)
+		case 3:
+			slices.Sort(v)
+			slices.Reverse(v)
+		case 4: // waves of random length, some with a level stretch
+			x, step := 1.0, 0.5
+			for i := range v {
+				if r.IntN(8) == 0 {
+					step = float64(r.IntN(3)-1) * r.Float64()
+				}
+				x = math.Max(0, x+step)
+				v[i] = x
+			}
+		case 5: // one value far above the rest: most in one bucket
+			v[r.IntN(n)] = 1e300
+		case 6: // one positive value, with and without zeros
+			for i := range v {
+				v[i] = 0.5 * float64(r.IntN(2))
+			}
 		}
 		if got, want := averageRanksInto(v, &sc), ranksOf(v); !reflect.DeepEqual(got, want) {
 			t.Fatalf("ranks of %v: %v, want %v", v, got, want)
@@ -120,7 +156,7 @@ func TestEvalFastPath(t *testing.T) {
 			for i := 0; i < 4000; i++ {
 				a.Add(r.Float64(), int64(1+r.IntN(9)))
 			}
-			ev, err := NewEvaluator(a, test, ids, []float64{test[0]}, Settings{E: []float64{0.05, 0.3}, BoyceSteps: 30})
+			ev, err := NewEvaluator(a, test, ids, []float64{test[0], test[n/2]}, Settings{E: []float64{0.05, 0.3}, BoyceSteps: 30})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -132,10 +168,15 @@ func TestEvalFastPath(t *testing.T) {
 			boyceDefined := 0
 			for b := 0; b < d.B; b++ {
 				d.fill(b, count)
-				ev.evalInto(count, &out, &sc)
+				ev.evalInto(count, ev.group, &out, &sc)
 				want := ev.evalReference(count)
-				if !reflect.DeepEqual(out, want) {
-					t.Fatalf("resample %d: fast %+v, reference %+v", b, out, want)
+				if got := ev.eval(count); !reflect.DeepEqual(got, want) {
+					t.Fatalf("resample %d: eval %+v, reference %+v", b, got, want)
+				}
+				noAUC := want // evalInto leaves the AUCs alone
+				noAUC.AUC, noAUC.AUCUnweighted = 0, 0
+				if !reflect.DeepEqual(out, noAUC) {
+					t.Fatalf("resample %d: fast %+v, reference %+v", b, out, noAUC)
 				}
 				if want.BoyceOK {
 					boyceDefined++
@@ -184,4 +225,30 @@ func BenchmarkBootSD(b *testing.B) {
 func ranksOf(v []float64) []float64 {
 	r, _ := Ranks(v)
 	return r
+}
+
+// BenchmarkAverageRanks times the ranks of the Boyce index's 100 window
+// ratios, taken from resamples of an evaluator of BenchmarkPairedRun.
+func BenchmarkAverageRanks(b *testing.B) {
+	pr := newPairedRun(b, 1, 1, 500)
+	ev := pr.evals[0][0]
+	rs := newResampler(pr.d)
+	c := make([]int32, len(ev.ids))
+	var v Values
+	var sc evalScratch
+	var ratios [][]float64
+	for r := 0; r < 64; r++ {
+		rs.gather(r, ev.ids, c)
+		ev.evalInto(c, ev.group, &v, &sc)
+		ratios = append(ratios, slices.Clone(sc.ratio))
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	lockThread()
+	defer unlockThread()
+	cpu0 := threadCPU()
+	for i := 0; i < b.N; i++ {
+		averageRanksInto(ratios[i%len(ratios)], &sc)
+	}
+	b.ReportMetric(float64((threadCPU()-cpu0).Nanoseconds())/float64(b.N), "cpu-ns/op")
 }

@@ -6,7 +6,9 @@ import (
 	"math/rand/v2"
 	"os"
 	"reflect"
+	"runtime"
 	"slices"
+	"sync"
 	"testing"
 )
 
@@ -291,10 +293,11 @@ func TestEvaluatorMatchesScore(t *testing.T) {
 
 // TestCompareMemoMatchesDirect: comparisons that take a side's resampled
 // scores from its memo (every presence of that side common: nested
-// extents, models on one extent) give exactly, bit for bit, what
-// evaluating every resample again gives, for nested, equal and partly
-// overlapping sets of test presences and for two models, in any order of
-// calls.
+// extents, models on one extent) and the counts from the table of the
+// draws give exactly, bit for bit, what drawing and evaluating every
+// resample again gives, for nested, equal and partly overlapping sets of
+// test presences and for two models, in any order of calls; so does
+// BootSD.
 func TestCompareMemoMatchesDirect(t *testing.T) {
 	r := rand.New(rand.NewPCG(41, 42))
 	c := randomCase(r, 300, 80, 30, 200)
@@ -329,14 +332,19 @@ func TestCompareMemoMatchesDirect(t *testing.T) {
 	type side struct{ m, k int }
 	pairs := [][2]side{{{0, 1}, {0, 0}}, {{0, 0}, {0, 1}}, {{0, 0}, {1, 0}}, {{0, 1}, {0, 2}}, {{1, 2}, {0, 0}}, {{0, 1}, {1, 1}}, {{1, 0}, {1, 0}}}
 	want := make([]Comparison, len(pairs))
-	useOwnMemo = false
+	wantSD := make([]float64, len(pairs))
+	useOwnMemo, useDrawTable = false, false
 	for i, p := range pairs {
 		var err error
 		if want[i], err = Compare(mk(p[0].m, p[0].k), mk(p[1].m, p[1].k), d); err != nil {
 			t.Fatal(err)
 		}
+		wantSD[i], _ = mk(p[0].m, p[0].k).BootSD(d)
 	}
-	useOwnMemo = true
+	useOwnMemo, useDrawTable = true, true
+	if d.table() == nil {
+		t.Fatal("the draws have no table: the test compares nothing")
+	}
 	shared := map[side]*Evaluator{}
 	ev := func(sd side) *Evaluator {
 		if shared[sd] == nil {
@@ -354,10 +362,100 @@ func TestCompareMemoMatchesDirect(t *testing.T) {
 			if !reflect.DeepEqual(got, want[i]) {
 				t.Errorf("pair %d, round %d: with the memo\n%+v\nwithout\n%+v", i, rep, got, want[i])
 			}
+			if sd, _ := ev(pairs[i][0]).BootSD(d); sd != wantSD[i] {
+				t.Errorf("pair %d, round %d: BootSD %v from the table, %v drawing again", i, rep, sd, wantSD[i])
+			}
 			nonzero = nonzero || got.Boyce.SD != 0 || got.PartialROC[0].SD != 0 || got.Omission[0].SD != 0
 		}
 	}
 	if !nonzero {
 		t.Error("no comparison had resampled differences: the test compares nothing")
+	}
+}
+
+// TestCompareConcurrent: comparisons and BootSD run at once on shared
+// evaluators (as the pipeline's workers do: one memo and one table of
+// draws for all) give what they give one at a time, also after the
+// table was collected and drawn again. Run it with -race.
+func TestCompareConcurrent(t *testing.T) {
+	r := rand.New(rand.NewPCG(43, 44))
+	c := randomCase(r, 200, 60, 20, 100)
+	s := Settings{E: []float64{0.05, 0.2}, BoyceSteps: 20}
+	_, acc := build(t, c, nil, 128)
+	mk := func(keep func(int) bool) *Evaluator {
+		var test []float64
+		var ids []int
+		for i, v := range c.test {
+			if keep(i) {
+				test, ids = append(test, v), append(ids, i)
+			}
+		}
+		e, err := NewEvaluator(acc, test, ids, []float64{c.test[0]}, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return e
+	}
+	d := Draws{N: len(c.test), B: 40, Seed: 3}
+	keeps := []func(int) bool{
+		func(int) bool { return true },
+		func(i int) bool { return i%2 == 0 },
+		func(i int) bool { return i%3 != 1 },
+	}
+	evals := make([]*Evaluator, len(keeps))
+	for i, k := range keeps {
+		evals[i] = mk(k)
+	}
+	type job struct{ a, b int }
+	var jobs []job
+	for a := range evals {
+		for b := range evals {
+			if a != b {
+				jobs = append(jobs, job{a, b})
+			}
+		}
+	}
+	want := make([]Comparison, len(jobs))
+	for i, j := range jobs {
+		var err error
+		if want[i], err = Compare(mk(keeps[j.a]), mk(keeps[j.b]), d); err != nil {
+			t.Fatal(err)
+		}
+	}
+	wantSD := make([]float64, len(evals))
+	for i := range evals {
+		wantSD[i], _ = mk(keeps[i]).BootSD(d)
+	}
+	runtime.GC() // the table of d may go and be drawn again
+	got := make([]Comparison, len(jobs))
+	gotSD := make([]float64, len(evals))
+	var wg sync.WaitGroup
+	for w := 0; w < 4; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := w; i < len(jobs); i += 4 {
+				cmp, err := Compare(evals[jobs[i].a], evals[jobs[i].b], d)
+				if err != nil {
+					t.Error(err)
+					return
+				}
+				got[i] = cmp
+			}
+			if w < len(evals) {
+				gotSD[w], _ = evals[w].BootSD(d)
+			}
+		}()
+	}
+	wg.Wait()
+	for i := range jobs {
+		if !reflect.DeepEqual(got[i], want[i]) {
+			t.Errorf("comparison %d (%d vs %d) at once:\n%+v\none at a time:\n%+v", i, jobs[i].a, jobs[i].b, got[i], want[i])
+		}
+	}
+	for i := range evals {
+		if gotSD[i] != wantSD[i] {
+			t.Errorf("BootSD of evaluator %d at once %v, one at a time %v", i, gotSD[i], wantSD[i])
+		}
 	}
 }

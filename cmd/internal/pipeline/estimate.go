@@ -46,7 +46,7 @@ func Estimate(o Options) (int64, error) {
 		workers = 0
 	}
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), 512*512, points)
-	est.Resamples = o.resampleMemo(o.maxExtents())
+	est.Resamples = o.resampleMemo(o.maxExtents(), points)
 	return est.Total(), nil
 }
 

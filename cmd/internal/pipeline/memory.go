@@ -11,6 +11,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/metrics"
 )
 
 // memoryUse is the estimate of the memory a run needs, by part.
@@ -42,7 +43,10 @@ const blockCache = 64 << 20
 //	points        about 400 bytes per occurrence record (records, lists, results)
 //	resamples     the paired analysis's memo of each model x extent's scores
 //	              on every resample (metrics: 8 (E values + thresholds + 1)
-//	              + E values + 9 bytes per resample), added by resampleMemo
+//	              + E values + 9 bytes per resample), and the table of the
+//	              resamples' counts (metrics.DrawTableBytes: 1 byte per
+//	              resample and test point, at most 32 MiB), added by
+//	              resampleMemo
 //
 // layoutValues is the number of presence values plus fixed thresholds.
 func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
@@ -59,11 +63,15 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 // resampleMemo returns the bytes of the paired analysis's memo of
 // resampled scores (see estimateMemory) for extents extents: every model,
 // null and the distance-only null on every extent, Iterations resamples
-// each, with the two percentile thresholds and the fixed ones.
-func (o *Options) resampleMemo(extents int) int64 {
+// each, with the two percentile thresholds and the fixed ones; and the
+// table of the resamples' counts for at most points test points.
+func (o *Options) resampleMemo(extents, points int) int64 {
 	models := int64(len(o.Models) + len(o.Nulls) + 1)
 	perResample := int64(8*(len(o.E)+2+len(o.Thresholds)+1) + len(o.E) + 9)
-	return models * int64(extents) * int64(max(o.Iterations, 0)) * perResample
+	// The run's test points are at most points: a table of fewer may fit
+	// where one of points would not.
+	table := min(int64(max(points, 0))*int64(max(o.Iterations, 0)), metrics.MaxDrawTableBytes)
+	return models*int64(extents)*int64(max(o.Iterations, 0))*perResample + table
 }
 
 // maxExtents is an upper bound on the members the settings can make,
@@ -126,7 +134,7 @@ func (s *Study) checkMemory() error {
 	}
 	layout := len(s.points) + len(o.Thresholds)
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, 512*512, len(s.points))
-	est.Resamples = o.resampleMemo(o.maxExtents())
+	est.Resamples = o.resampleMemo(o.maxExtents(), len(s.points))
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil

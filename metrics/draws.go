@@ -1,0 +1,184 @@
+package metrics
+
+import (
+	"math/rand/v2"
+	"runtime"
+	"sync"
+	"weak"
+)
+
+// Draws is one set of B full-size resamples, with replacement, of the N test
+// presences of a run (indexed 0..N-1). Resample b draws N indices with
+// math/rand/v2 PCG seeded with (Seed, b): it depends only on the seed, N
+// and b, so every model and extent sees the same index sets.
+type Draws struct {
+	N, B int
+	Seed uint64
+}
+
+// fill sets counts[g] to the number of times test presence g is drawn in
+// resample b. counts must have length N.
+func (d Draws) fill(b int, counts []int32) {
+	clear(counts)
+	rng := rand.New(rand.NewPCG(d.Seed, uint64(b)))
+	for k := 0; k < d.N; k++ {
+		counts[rng.IntN(d.N)]++
+	}
+}
+
+// MaxDrawTableBytes is the largest table of resample counts kept for one
+// Draws (see DrawTableBytes): B x N bytes. Draws above it are drawn again
+// wherever they are used.
+const MaxDrawTableBytes = 32 << 20
+
+// DrawTableBytes returns the bytes of the table of resample counts that
+// the comparisons and BootSD keep for d (one byte per resample and test
+// presence, B x N), or 0 when d is not tabled (above MaxDrawTableBytes).
+// A run holds one at most: it lives while some evaluator that used it
+// does.
+func DrawTableBytes(d Draws) int64 {
+	n := int64(max(d.N, 0)) * int64(max(d.B, 0))
+	if n > MaxDrawTableBytes {
+		return 0
+	}
+	return n
+}
+
+// useDrawTable is false only in the tests that check the table against
+// drawing every resample again.
+var useDrawTable = true
+
+// drawTable holds the counts of every resample of one Draws:
+// counts[b*N+g] is the number of times test presence g is drawn in
+// resample b.
+type drawTable struct {
+	n      int
+	counts []uint8
+}
+
+// row returns the counts of resample b.
+func (t *drawTable) row(b int) []uint8 { return t.counts[b*t.n : (b+1)*t.n] }
+
+// drawTables holds the table of each Draws in use, weakly: a table lives
+// while an evaluator (or a Compare under way) holds it, so a run's table
+// goes with the run's evaluators. untabled marks a Draws with a count
+// above 255 (impossible for N < 256; for larger N, within the table's
+// size, a chance of about 1e-500 per resample: the Poisson(1) tail),
+// drawn again wherever it is used.
+var drawTables struct {
+	sync.Mutex
+	m map[Draws]tableEntry
+}
+
+type tableEntry struct {
+	tab      weak.Pointer[drawTable]
+	untabled bool
+}
+
+// table returns the table of d's counts, building it on first use (the
+// same counts fill gives, drawn once), or nil when d is not tabled
+// (DrawTableBytes 0, or a count above 255). Safe for concurrent use; the
+// caller keeps the table alive by holding it.
+func (d Draws) table() *drawTable {
+	if d.N <= 0 || d.B <= 0 || DrawTableBytes(d) == 0 || !useDrawTable {
+		return nil
+	}
+	drawTables.Lock()
+	defer drawTables.Unlock()
+	if en := drawTables.m[d]; en.untabled {
+		return nil
+	} else if t := en.tab.Value(); t != nil {
+		return t
+	}
+	if drawTables.m == nil {
+		drawTables.m = map[Draws]tableEntry{}
+	}
+	t := &drawTable{n: d.N, counts: make([]uint8, d.N*d.B)}
+	global := make([]int32, d.N)
+	for b := 0; b < d.B; b++ {
+		d.fill(b, global)
+		row := t.row(b)
+		for g, c := range global {
+			if c > 255 {
+				drawTables.m[d] = tableEntry{untabled: true}
+				return nil
+			}
+			row[g] = uint8(c)
+		}
+	}
+	drawTables.m[d] = tableEntry{tab: weak.Make(t)}
+	runtime.AddCleanup(t, func(d Draws) {
+		drawTables.Lock()
+		defer drawTables.Unlock()
+		if en, ok := drawTables.m[d]; ok && !en.untabled && en.tab.Value() == nil {
+			delete(drawTables.m, d)
+		}
+	}, d)
+	return t
+}
+
+// resampler gives the counts of the resamples of one Draws at chosen
+// test presences, from its table when it has one, else drawing each
+// resample again (once for any number of calls on it in a row).
+type resampler struct {
+	d      Draws
+	tab    *drawTable
+	global []int32 // the counts of resample filled, without a table
+	filled int
+}
+
+func newResampler(d Draws) *resampler {
+	rs := &resampler{d: d, tab: d.table(), filled: -1}
+	if rs.tab == nil {
+		rs.global = make([]int32, d.N)
+	}
+	return rs
+}
+
+// draw fills rs.global with the counts of resample b, unless it holds
+// them already.
+func (rs *resampler) draw(b int) {
+	if rs.filled != b {
+		rs.d.fill(b, rs.global)
+		rs.filled = b
+	}
+}
+
+// gather sets dst[k] to the number of times test presence ids[k] is drawn
+// in resample b.
+func (rs *resampler) gather(b int, ids []int, dst []int32) {
+	if rs.tab != nil {
+		row := rs.tab.row(b)
+		for k, id := range ids {
+			dst[k] = int32(row[id])
+		}
+		return
+	}
+	rs.draw(b)
+	for k, id := range ids {
+		dst[k] = rs.global[id]
+	}
+}
+
+// groups sets groups[g] to the number of copies drawn in resample b of
+// the test presences ids[k] with group[k] = g, and returns their total.
+func (rs *resampler) groups(b int, ids, group []int, groups []int) int {
+	clear(groups)
+	r := 0
+	if rs.tab != nil {
+		row := rs.tab.row(b)
+		for k, id := range ids {
+			c := int(row[id])
+			r += c
+			groups[group[k]] += c
+		}
+		return r
+	}
+	rs.draw(b)
+	for k, id := range ids {
+		c := int(rs.global[id])
+		r += c
+		groups[group[k]] += c
+	}
+	return r
+}
