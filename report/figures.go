@@ -159,7 +159,7 @@ func render(f figure, format string) ([]byte, error) {
 // at 300 dpi a two-column figure is 2067 x 2717 pixels, 22 MB, and the
 // copy took a quarter of writing the report. The canvas size is the
 // image's, rounded to whole pixels as NewWith rounds it.
-func newPNGCanvas(w, h vg.Length) *vgimg.Canvas {
+func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	px := func(l vg.Length) int { return int(l/vg.Inch*vg.Length(pngDPI) + 0.5) }
 	img := image.NewRGBA(image.Rect(0, 0, px(w), px(h)))
 	ctx := gg.NewContextForRGBA(img)
@@ -167,14 +167,14 @@ func newPNGCanvas(w, h vg.Length) *vgimg.Canvas {
 	ctx.InvertY()
 	// NewWith paints the image with its background colour, white by
 	// default (an image option excludes UseBackgroundColor).
-	return vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI))
+	return newFastTextCanvas(vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI)), img)
 }
 
 // fastPNG writes a canvas as PNG with the fastest deflate level: the
 // report's figures are flat colours and lines, which compress well at any
 // level, and encoding at the default level was the largest part of writing
 // a report. The output is still deterministic.
-type fastPNG struct{ *vgimg.Canvas }
+type fastPNG struct{ *pngCanvas }
 
 // WriteTo implements io.WriterTo.
 func (c fastPNG) WriteTo(w io.Writer) (int64, error) {
