@@ -2,14 +2,9 @@ package report
 
 import (
 	"bytes"
-	"encoding/binary"
 	"fmt"
-	"hash/crc32"
 	"image"
 	"image/color"
-	"image/png"
-	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -112,6 +107,17 @@ var pdfOnce sync.Once
 
 // render draws f in one format: "svg", "pdf" or "png" (at pngDPI on white).
 func render(f figure, format string) ([]byte, error) {
+	if format == "png" {
+		c := newPNGCanvas(f.W, f.H)
+		if err := f.draw(draw.New(c)); err != nil {
+			return nil, err
+		}
+		data, err := encodePNG(c.img, pngDPI)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure %s: write PNG: %w", f.Name, err)
+		}
+		return data, nil
+	}
 	var c vg.CanvasWriterTo
 	switch format {
 	case "svg":
@@ -124,18 +130,13 @@ func render(f figure, format string) ([]byte, error) {
 			fpdf.SetDefaultCatalogSort(true)
 		})
 		c = vgpdf.New(f.W, f.H)
-	case "png":
-		c = fastPNG{newPNGCanvas(f.W, f.H)}
 	default:
 		return nil, fmt.Errorf("report: figure %s: unknown format %q", f.Name, format)
 	}
+	// A white page under the drawing: the files paste onto any background.
 	dc := draw.New(c)
-	if format != "png" {
-		// A white page under the drawing: the files paste onto any
-		// background.
-		dc.SetColor(color.White)
-		dc.Fill(dc.Rectangle.Path())
-	}
+	dc.SetColor(color.White)
+	dc.Fill(dc.Rectangle.Path())
 	if err := f.draw(dc); err != nil {
 		return nil, err
 	}
@@ -143,11 +144,8 @@ func render(f figure, format string) ([]byte, error) {
 	if _, err := c.WriteTo(&buf); err != nil {
 		return nil, fmt.Errorf("report: figure %s: write %s: %w", f.Name, strings.ToUpper(format), err)
 	}
-	switch format {
-	case "svg":
+	if format == "svg" {
 		return fixSVG(buf.Bytes()), nil
-	case "png":
-		return withPNGResolution(buf.Bytes(), pngDPI)
 	}
 	return buf.Bytes(), nil
 }
@@ -168,54 +166,6 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	// NewWith paints the image with its background colour, white by
 	// default (an image option excludes UseBackgroundColor).
 	return newFastTextCanvas(vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI)), img)
-}
-
-// fastPNG writes a canvas as PNG with the fastest deflate level: the
-// report's figures are flat colours and lines, which compress well at any
-// level, and encoding at the default level was the largest part of writing
-// a report. The output is still deterministic.
-type fastPNG struct{ *pngCanvas }
-
-// WriteTo implements io.WriterTo.
-func (c fastPNG) WriteTo(w io.Writer) (int64, error) {
-	cw := &countWriter{w: w}
-	enc := png.Encoder{CompressionLevel: png.BestSpeed}
-	err := enc.Encode(cw, c.Image())
-	return cw.n, err
-}
-
-// countWriter counts the bytes written through it.
-type countWriter struct {
-	w io.Writer
-	n int64
-}
-
-func (c *countWriter) Write(p []byte) (int, error) {
-	n, err := c.w.Write(p)
-	c.n += int64(n)
-	return n, err
-}
-
-// withPNGResolution adds a pHYs chunk after the header of a PNG stream,
-// so that programs that read the resolution see dpi (PNG specification,
-// section 11.3.5.3: pixels per metre, unit byte 1). gonum writes none.
-func withPNGResolution(data []byte, dpi int) ([]byte, error) {
-	const sig, ihdr = 8, 8 + 13 + 4 // signature; IHDR length, type, data, CRC
-	if len(data) < sig+ihdr || string(data[12:16]) != "IHDR" {
-		return nil, fmt.Errorf("report: PNG without a header")
-	}
-	ppm := uint32(math.Round(float64(dpi) / 0.0254))
-	chunk := make([]byte, 4+4+9+4)
-	binary.BigEndian.PutUint32(chunk[0:], 9)
-	copy(chunk[4:], "pHYs")
-	binary.BigEndian.PutUint32(chunk[8:], ppm)
-	binary.BigEndian.PutUint32(chunk[12:], ppm)
-	chunk[16] = 1
-	binary.BigEndian.PutUint32(chunk[17:], crc32.ChecksumIEEE(chunk[4:17]))
-	out := make([]byte, 0, len(data)+len(chunk))
-	out = append(out, data[:sig+ihdr]...)
-	out = append(out, chunk...)
-	return append(out, data[sig+ihdr:]...), nil
 }
 
 // inlineSVG prepares an SVG document for inlining in HTML: drops the XML
