@@ -5,6 +5,8 @@ import (
 	"image/color"
 	"testing"
 
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
@@ -49,6 +51,46 @@ func TestPNGTextSame(t *testing.T) {
 		}
 		if bytes.Equal(fast.img.Pix, blank.img.Pix) {
 			t.Errorf("text in %v drew nothing", col)
+		}
+	}
+}
+
+// TestPaddingLine wants the same data area from a plot of paddingLines as
+// from the plot of the plotter.Lines they wrap: curves touching the edges,
+// reaching outside the axes' ranges, of several widths, and none.
+func TestPaddingLine(t *testing.T) {
+	curves := []plotter.XYs{
+		{{X: 0, Y: 0}, {X: 0.2, Y: 0.7}, {X: 1, Y: 1}},
+		{{X: -0.5, Y: 0.3}, {X: 0.02, Y: -0.1}, {X: 0.5, Y: 0.5}, {X: 0.99, Y: 1.02}},
+		{{X: 0.3, Y: 0.001}, {X: 0.3, Y: 0.999}, {X: 1.5, Y: 2}},
+	}
+	widths := []float64{1.1, 4, 0.5}
+	for n := 0; n <= len(curves); n++ {
+		var plain, padded *plot.Plot
+		for _, wrap := range []bool{false, true} {
+			p := newPlot("", 80*vg.Millimeter)
+			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
+			for i, xys := range curves[:n] {
+				l, err := plotter.NewLine(xys)
+				if err != nil {
+					t.Fatal(err)
+				}
+				l.LineStyle = lineStyle(ink, widths[i], nil)
+				if wrap {
+					p.Add(paddingLine{l})
+				} else {
+					p.Add(l)
+				}
+			}
+			if wrap {
+				padded = p
+			} else {
+				plain = p
+			}
+		}
+		c := draw.New(newPNGCanvas(80*vg.Millimeter, 60*vg.Millimeter))
+		if a, b := plain.DataCanvas(c).Rectangle, padded.DataCanvas(c).Rectangle; a != b {
+			t.Errorf("%d curves: data area %v with paddingLine, %v without", n, b, a)
 		}
 	}
 }
