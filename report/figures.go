@@ -113,6 +113,7 @@ func render(f figure, format string) ([]byte, error) {
 			return nil, err
 		}
 		data, err := encodePNG(c.img, pngDPI)
+		pixBuffers.put(c.img.Pix)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure %s: write PNG: %w", f.Name, err)
 		}
@@ -159,7 +160,10 @@ func render(f figure, format string) ([]byte, error) {
 // image's, rounded to whole pixels as NewWith rounds it.
 func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	px := func(l vg.Length) int { return int(l/vg.Inch*vg.Length(pngDPI) + 0.5) }
-	img := image.NewRGBA(image.Rect(0, 0, px(w), px(h)))
+	pw, ph := px(w), px(h)
+	// The pixels are a used buffer when one is free (NewWith paints
+	// every pixel).
+	img := &image.RGBA{Pix: pixBuffers.get(4 * pw * ph), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
 	ctx := gg.NewContextForRGBA(img)
 	ctx.SetLineCapButt()
 	ctx.InvertY()
