@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -58,46 +59,73 @@ type renderedFigure struct {
 	svg []byte
 }
 
-// writeFigures renders every figure as SVG, PDF and PNG into figDir. The
-// renderings run in parallel (each on its own canvas) and are written in a
-// fixed order afterwards, so the files do not depend on the schedule.
-func writeFigures(figDir string, r *Results) ([]renderedFigure, error) {
+// renderOrder is the order the renderings start in: the SVGs first, since
+// the page inlines them all (it is built while the other formats are
+// drawn), then the PNGs, the dearest, then the PDFs.
+var renderOrder = []string{"svg", "png", "pdf"}
+
+// writeFigures renders every figure of fs as SVG, PDF and PNG into figDir
+// and, once every SVG is drawn, calls withSVGs with them beside the other
+// renderings (not when one failed). The renderings run in parallel, at most GOMAXPROCS at once,
+// each on its own canvas, and each file is written (synced, renamed) as
+// soon as it is drawn, outside that limit, so that waiting on the disk
+// overlaps the drawing. No file depends on the schedule. It returns the
+// first error in a fixed order: the figures in order, each in
+// figureFormats order, then withSVGs's; files drawn without error are
+// written even when another fails.
+func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) error) error {
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
-		return nil, fmt.Errorf("report: create %s: %w", figDir, err)
+		return fmt.Errorf("report: create %s: %w", figDir, err)
 	}
-	fs := figures(r)
-	n := len(fs) * len(figureFormats)
-	data := make([][]byte, n)
-	errs := make([]error, n)
+	errs := make([][]error, len(fs))
+	for k := range errs {
+		errs[k] = make([]error, len(figureFormats))
+	}
+	svgs := make([]renderedFigure, len(fs))
+	var svgsLeft, all sync.WaitGroup
+	svgsLeft.Add(len(fs))
 	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
-	var wg sync.WaitGroup
-	for i := range n {
-		wg.Add(1)
-		sem <- struct{}{}
-		go func() {
-			defer func() { <-sem; wg.Done() }()
-			data[i], errs[i] = render(fs[i/len(figureFormats)], figureFormats[i%len(figureFormats)])
-		}()
+	for _, format := range renderOrder {
+		j := slices.Index(figureFormats, format)
+		for k, f := range fs {
+			all.Add(1)
+			sem <- struct{}{}
+			go func() {
+				defer all.Done()
+				data, err := render(f, format)
+				<-sem
+				if err == nil {
+					err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
+				}
+				errs[k][j] = err
+				if format == "svg" {
+					svgs[k] = renderedFigure{fig: f, svg: data}
+					svgsLeft.Done()
+				}
+			}()
+		}
 	}
-	wg.Wait()
-	var out []renderedFigure
-	for k, f := range fs {
-		rf := renderedFigure{fig: f}
-		for j, format := range figureFormats {
-			i := k*len(figureFormats) + j
-			if errs[i] != nil {
-				return nil, errs[i]
-			}
-			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data[i]); err != nil {
-				return nil, err
-			}
-			if format == "svg" {
-				rf.svg = data[i]
+	var pageErr error
+	all.Add(1)
+	go func() {
+		defer all.Done()
+		svgsLeft.Wait()
+		for _, fe := range errs {
+			if fe[slices.Index(figureFormats, "svg")] != nil {
+				return // no page without every figure
 			}
 		}
-		out = append(out, rf)
+		pageErr = withSVGs(svgs)
+	}()
+	all.Wait()
+	for _, fe := range errs {
+		for _, err := range fe {
+			if err != nil {
+				return err
+			}
+		}
 	}
-	return out, nil
+	return pageErr
 }
 
 // pdfOnce fixes the PDF writer's dates and resource order, so that the
