@@ -277,7 +277,7 @@ func (m *mapScene) addMarks(p *plot.Plot) error {
 				return fmt.Errorf("report: figure map: %w", err)
 			}
 			sc.GlyphStyle = gs
-			p.Add(sc)
+			p.Add(paddingScatter{sc})
 		}
 	}
 	return nil

@@ -314,27 +314,45 @@ func (t boxThumb) Thumbnail(c *draw.Canvas) {
 }
 
 // paddingLine is a plotter.Line that gives the plot, as glyph boxes, only
-// those of its points that can set the padding around the data area: the
-// first point of least and of greatest x, and of least and of greatest y,
-// among the points inside the axes' ranges. A plotter.Line gives a box of
-// its line width at every point, and the plot asks for them again for each
-// padding it computes; for a few hundred ROC curves of hundreds of points
-// that was most of the memory a report allocated. The plot pads by the
-// outermost box on each side (gonum plot's leftMost, rightMost, bottomMost
-// and topMost), and all boxes of one line have the same size, so these
-// four give it the same padding.
+// those of its points that can set the padding around the data area
+// (paddingBoxes). A plotter.Line gives a box of its line width at every
+// point, and the plot asks for them again for each padding it computes;
+// for a few hundred ROC curves of hundreds of points that was most of the
+// memory a report allocated.
 type paddingLine struct{ *plotter.Line }
 
 // GlyphBoxes implements plot.GlyphBoxer.
 func (l paddingLine) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
-	r := 0.5 * l.LineStyle.Width
+	return paddingBoxes(p, l.XYs, 0.5*l.LineStyle.Width)
+}
+
+// paddingScatter is a plotter.Scatter of one glyph style that gives the
+// plot only the glyph boxes that can set its padding (paddingBoxes).
+type paddingScatter struct{ *plotter.Scatter }
+
+// GlyphBoxes implements plot.GlyphBoxer.
+func (sc paddingScatter) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
+	if sc.GlyphStyleFunc != nil {
+		return sc.Scatter.GlyphBoxes(p) // boxes of several sizes
+	}
+	return paddingBoxes(p, sc.XYs, sc.GlyphStyle.Radius)
+}
+
+// paddingBoxes returns, of the boxes of half-side r around the points xys
+// (what a plotter.Line or a one-style plotter.Scatter gives), the first
+// box of least and of greatest x, and of least and of greatest y, among
+// the points inside the axes' ranges. The plot pads by the outermost box
+// on each side (gonum plot's leftMost, rightMost, bottomMost and topMost,
+// over boxes inside the ranges), and these boxes all have one size, so
+// the four give it the same padding as all of them (TestPaddingBoxes).
+func paddingBoxes(p *plot.Plot, xys plotter.XYs, r vg.Length) []plot.GlyphBox {
 	if r <= 0 {
 		return nil // boxes of no size pad nothing
 	}
 	var ext [4]plot.GlyphBox // least x, greatest x, least y, greatest y
 	found := false
-	for i := range l.XYs {
-		x, y := p.X.Norm(l.XYs[i].X), p.Y.Norm(l.XYs[i].Y)
+	for i := range xys {
+		x, y := p.X.Norm(xys[i].X), p.Y.Norm(xys[i].Y)
 		if !(x >= 0 && x <= 1 && y >= 0 && y <= 1) {
 			continue // outside the ranges (or NaN): never padded for
 		}

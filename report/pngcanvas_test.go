@@ -55,16 +55,22 @@ func TestPNGTextSame(t *testing.T) {
 	}
 }
 
-// TestPaddingLine wants the same data area from a plot of paddingLines as
-// from the plot of the plotter.Lines they wrap: curves touching the edges,
-// reaching outside the axes' ranges, of several widths, and none.
-func TestPaddingLine(t *testing.T) {
+// TestPaddingBoxes wants the same data area from a plot of paddingLines
+// and paddingScatters as from the plot of the plotter.Lines and
+// plotter.Scatters they wrap: curves and points touching the edges,
+// reaching outside the axes' ranges, of several widths and sizes, and
+// none.
+func TestPaddingBoxes(t *testing.T) {
 	curves := []plotter.XYs{
+		// A diamond: each side's outermost point is a different one.
+		{{X: 0.5, Y: 1}, {X: 0, Y: 0.5}, {X: 0.5, Y: 0}, {X: 1, Y: 0.5}},
 		{{X: 0, Y: 0}, {X: 0.2, Y: 0.7}, {X: 1, Y: 1}},
 		{{X: -0.5, Y: 0.3}, {X: 0.02, Y: -0.1}, {X: 0.5, Y: 0.5}, {X: 0.99, Y: 1.02}},
 		{{X: 0.3, Y: 0.001}, {X: 0.3, Y: 0.999}, {X: 1.5, Y: 2}},
+		{{X: 0.97, Y: 0.5}, {X: 0.01, Y: 0.02}},
 	}
-	widths := []float64{1.1, 4, 0.5}
+	widths := []float64{9, 1.1, 4, 0.5, 9}
+	radii := []float64{12, 9, 1.1, 4, 0.5}
 	for n := 0; n <= len(curves); n++ {
 		var plain, padded *plot.Plot
 		for _, wrap := range []bool{false, true} {
@@ -76,10 +82,15 @@ func TestPaddingLine(t *testing.T) {
 					t.Fatal(err)
 				}
 				l.LineStyle = lineStyle(ink, widths[i], nil)
+				sc, err := plotter.NewScatter(xys)
+				if err != nil {
+					t.Fatal(err)
+				}
+				sc.GlyphStyle.Radius = vg.Points(radii[i])
 				if wrap {
-					p.Add(paddingLine{l})
+					p.Add(paddingLine{l}, paddingScatter{sc})
 				} else {
-					p.Add(l)
+					p.Add(l, sc)
 				}
 			}
 			if wrap {
@@ -90,7 +101,7 @@ func TestPaddingLine(t *testing.T) {
 		}
 		c := draw.New(newPNGCanvas(80*vg.Millimeter, 60*vg.Millimeter))
 		if a, b := plain.DataCanvas(c).Rectangle, padded.DataCanvas(c).Rectangle; a != b {
-			t.Errorf("%d curves: data area %v with paddingLine, %v without", n, b, a)
+			t.Errorf("%d curves: data area %v with the padding wrappers, %v without", n, b, a)
 		}
 	}
 }
