@@ -203,19 +203,50 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 // inlineSVG prepares an SVG document for inlining in HTML: drops the XML
 // prolog and comment and gives the root element an id, a role and a label.
 func inlineSVG(svg []byte, id, label string) string {
-	s := string(svg)
-	if i := strings.Index(s, "<svg"); i >= 0 {
-		s = s[i:]
+	i := bytes.Index(svg, []byte("<svg"))
+	if i < 0 {
+		return string(svg)
 	}
 	attrs := fmt.Sprintf(`<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
-	return strings.Replace(s, "<svg", attrs, 1)
+	return attrs + string(svg[i+len("<svg"):]) // one copy of the document
+}
+
+// svgFixes are fixSVG's replacements; no two can overlap.
+var svgFixes = [][2][]byte{
+	{[]byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `)},
+	{[]byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")},
 }
 
 // fixSVG makes embedded raster images fill their rectangle (the map
 // preview is stretched to the data extent, not letterboxed) and keeps their
 // cells sharp, and names fonts with the same widths as Liberation Sans
-// (Arial, Helvetica) for viewers that lack it.
+// (Arial, Helvetica) for viewers that lack it. It is bytes.ReplaceAll of
+// each of svgFixes in turn, in one pass into one buffer of the final
+// size.
 func fixSVG(svg []byte) []byte {
-	svg = bytes.ReplaceAll(svg, []byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `))
-	return bytes.ReplaceAll(svg, []byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"))
+	n := len(svg)
+	next := make([]int, len(svgFixes)) // the next match of each, or -1
+	for k, f := range svgFixes {
+		n += bytes.Count(svg, f[0]) * (len(f[1]) - len(f[0]))
+		next[k] = bytes.Index(svg, f[0])
+	}
+	out := make([]byte, 0, n)
+	for r := 0; ; {
+		k := -1 // the fix that matches first
+		for q, at := range next {
+			if at >= 0 && (k < 0 || at < next[k]) {
+				k = q
+			}
+		}
+		if k < 0 {
+			return append(out, svg[r:]...)
+		}
+		out = append(append(out, svg[r:next[k]]...), svgFixes[k][1]...)
+		r = next[k] + len(svgFixes[k][0])
+		if i := bytes.Index(svg[r:], svgFixes[k][0]); i >= 0 {
+			next[k] = r + i
+		} else {
+			next[k] = -1
+		}
+	}
 }

@@ -220,8 +220,14 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 			WidthMM: strconv.Itoa(int(math.Round(float64(rf.fig.W / vg.Millimeter)))),
 		})
 	}
-	var b bytes.Buffer
-	if err := pageTemplate.Execute(&b, v); err != nil {
+	// The page is mostly the inlined figures: room for them at once
+	// rather than a chain of doublings, each fresh memory.
+	size := len(data) + len(methods) + 1<<20
+	for _, rf := range figs {
+		size += len(rf.svg)
+	}
+	b := bytes.NewBuffer(make([]byte, 0, size))
+	if err := pageTemplate.Execute(b, v); err != nil {
 		return nil, fmt.Errorf("report: report.html: %w", err)
 	}
 	return plainPlus(b.Bytes()), nil
@@ -235,7 +241,23 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 // (gonum's vgsvg) and the JSON by encoding/json (& as \u0026). Signed
 // numbers such as "+0.042" so read as typed in the page source, as they
 // did before the page moved to html/template.
-func plainPlus(b []byte) []byte { return bytes.ReplaceAll(b, []byte("&#43;"), []byte("+")) }
+// It replaces in place (the text only shrinks): the page is megabytes,
+// and a copy of it was fresh memory to fault in.
+func plainPlus(b []byte) []byte {
+	const entity = "&#43;"
+	w := 0 // bytes kept so far
+	for r := 0; ; {
+		i := bytes.Index(b[r:], []byte(entity))
+		if i < 0 {
+			w += copy(b[w:], b[r:])
+			return b[:w]
+		}
+		w += copy(b[w:], b[r:r+i])
+		b[w] = '+'
+		w++
+		r += i + len(entity)
+	}
+}
 
 func verdictClass(v Judgement) string {
 	switch v {

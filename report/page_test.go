@@ -112,3 +112,24 @@ func TestTableBody(t *testing.T) {
 		t.Errorf("Body:\n%q\nthe template wrote:\n%q", got, want.String())
 	}
 }
+
+// TestInPlaceRewrites checks plainPlus and fixSVG, which rewrite without
+// bytes.ReplaceAll's copies, against bytes.ReplaceAll.
+func TestInPlaceRewrites(t *testing.T) {
+	for _, s := range []string{"", "plain", "&#43;", "&#43;&#43;x&#43;", "a&#4&#43;3;b", "&#43", "x&#43;0.031 y &amp;#43;"} {
+		want := bytes.ReplaceAll([]byte(s), []byte("&#43;"), []byte("+"))
+		if got := plainPlus([]byte(s)); !bytes.Equal(got, want) {
+			t.Errorf("plainPlus(%q) = %q, want %q", s, got, want)
+		}
+	}
+	for _, s := range []string{"", "<svg>", "<image x/><image y/>", "font-family:Liberation Sans;<image a/>font-family:Liberation Sans;",
+		"<imagefont-family:Liberation Sans; <image ", "<image <image font-family:Liberation Sans;font-family:Liberation Sans;"} {
+		want := []byte(s)
+		for _, f := range svgFixes {
+			want = bytes.ReplaceAll(want, f[0], f[1])
+		}
+		if got := fixSVG([]byte(s)); !bytes.Equal(got, want) {
+			t.Errorf("fixSVG(%q) = %q, want %q", s, got, want)
+		}
+	}
+}
