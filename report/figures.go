@@ -191,7 +191,9 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	pw, ph := px(w), px(h)
 	// The pixels are a used buffer when one is free (NewWith paints
 	// every pixel).
-	img := &image.RGBA{Pix: pixBuffers.get(4 * pw * ph), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
+	// A new buffer has room for the largest figure (two columns by the
+	// page height), so that any later canvas can take it over.
+	img := &image.RGBA{Pix: pixBuffers.get(4*pw*ph, 4*px(twoColumns)*px(maxHeight)), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
 	ctx := gg.NewContextForRGBA(img)
 	ctx.SetLineCapButt()
 	ctx.InvertY()

@@ -172,8 +172,9 @@ type bufferList struct {
 	free [][]byte
 }
 
-// get returns a buffer of n bytes, with any content.
-func (l *bufferList) get(n int) []byte {
+// get returns a buffer of n bytes, with any content: a free one, or a new
+// one with room for at least room bytes.
+func (l *bufferList) get(n, room int) []byte {
 	l.mu.Lock()
 	defer l.mu.Unlock()
 	for i, b := range l.free {
@@ -182,7 +183,7 @@ func (l *bufferList) get(n int) []byte {
 			return b[:n]
 		}
 	}
-	return make([]byte, n)
+	return make([]byte, n, max(n, room))
 }
 
 // put keeps b for a later get; b must no longer be used.
