@@ -59,6 +59,18 @@ type renderedFigure struct {
 	svg []byte
 }
 
+// recovered returns fn's error, or an error naming what for a panic in fn
+// (a bug, in our code or a library's): run on a goroutine of its own, a
+// panic would end the program past the command's recovery.
+func recovered(what string, fn func() error) (err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			err = fmt.Errorf("report: %s: internal error: %v", what, v)
+		}
+	}()
+	return fn()
+}
+
 // renderOrder is the order the renderings start in: the SVGs first, since
 // the page inlines them all (it is built while the other formats are
 // drawn), then the PNGs, the dearest, then the PDFs.
@@ -92,7 +104,11 @@ func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) er
 			sem <- struct{}{}
 			go func() {
 				defer all.Done()
-				data, err := render(f, format)
+				var data []byte
+				err := recovered("figure "+f.Name+" ("+format+")", func() (err error) {
+					data, err = render(f, format)
+					return err
+				})
 				<-sem
 				if err == nil {
 					err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
@@ -115,7 +131,7 @@ func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) er
 				return // no page without every figure
 			}
 		}
-		pageErr = withSVGs(svgs)
+		pageErr = recovered("report.html", func() error { return withSVGs(svgs) })
 	}()
 	all.Wait()
 	for _, fe := range errs {

@@ -30,7 +30,9 @@ func Write(dir string, r *Results) error {
 	}
 	methods := methodsText(r)
 	methodsErr := make(chan error, 1)
-	go func() { methodsErr <- writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods)) }()
+	go func() {
+		methodsErr <- recovered("methods.md", func() error { return writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods)) })
+	}()
 	err := writeFigures(filepath.Join(dir, "figures"), figures(r), func(rendered []renderedFigure) error {
 		page, err := htmlPage(r, rendered, methods)
 		if err != nil {

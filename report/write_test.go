@@ -379,3 +379,16 @@ func TestWriteFiguresError(t *testing.T) {
 		}
 	}
 }
+
+// TestWriteFiguresPanic: a figure whose drawing panics (a bug) gives an
+// error naming it instead of ending the program from a goroutine.
+func TestWriteFiguresPanic(t *testing.T) {
+	r := analyzedSample(t)
+	bad := metricsFigure(r)
+	bad.Name = "bad"
+	bad.draw = func(draw.Canvas) error { panic("out of range") }
+	err := writeFigures(t.TempDir(), []figure{metricsFigure(r), bad}, func([]renderedFigure) error { return nil })
+	if err == nil || !strings.Contains(err.Error(), "figure bad (svg): internal error: out of range") {
+		t.Errorf("error %v, want the SVG's internal error", err)
+	}
+}

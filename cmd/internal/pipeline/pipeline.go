@@ -195,7 +195,7 @@ func (s *Study) finishScores() error {
 	famErr := make(chan error, 1)
 	go func() {
 		t0 := time.Now()
-		err := s.writeFamilyFiles()
+		err := recovered("writing extents.gpkg", s.writeFamilyFiles)
 		famDur = time.Since(t0)
 		famErr <- err
 	}()
@@ -205,7 +205,9 @@ func (s *Study) finishScores() error {
 	ferr := <-famErr
 	s.logf("extents.gpkg written in %.2f s (during the analysis)", famDur.Seconds())
 	s.logf("analysis in %.2f s", anaDur.Seconds())
-	if ferr != nil {
+	if fault.IsInternal(ferr) {
+		return ferr
+	} else if ferr != nil {
 		return WriteFailed(ferr)
 	}
 	if err != nil {
@@ -215,7 +217,7 @@ func (s *Study) finishScores() error {
 	resErr := make(chan error, 1)
 	go func() {
 		t0 := time.Now()
-		err := s.writeResults()
+		err := recovered("writing the results files", s.writeResults)
 		resDur = time.Since(t0)
 		resErr <- err
 	}()
@@ -232,6 +234,18 @@ func (s *Study) finishScores() error {
 		return WriteFailed(err)
 	}
 	return nil
+}
+
+// recovered returns fn's error, or an internal error naming what for a
+// panic in fn (a bug): on a goroutine of its own, a panic would end the
+// program past the command's recovery.
+func recovered(what string, fn func() error) (err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			err = fault.Internal(fmt.Errorf("%s: %v", what, v))
+		}
+	}()
+	return fn()
 }
 
 // writeResults writes results.json, scores.csv and omitted_points.gpkg
