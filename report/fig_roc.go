@@ -140,7 +140,7 @@ func rocFigure(r *Results) figure {
 					return fmt.Errorf("report: figure roc: %w", err)
 				}
 				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
-				p.Add(l)
+				p.Add(paddingLine{l})
 			}
 			plots[i/cols][i%cols] = p
 		}

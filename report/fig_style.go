@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
@@ -310,4 +311,71 @@ func (t boxThumb) Thumbnail(c *draw.Canvas) {
 	c.SetColor(t.fill)
 	c.Fill(r.Path())
 	c.StrokeLines(lineStyle(ink, 0.5, nil), []vg.Point{r.Min, {X: r.Max.X, Y: r.Min.Y}, r.Max, {X: r.Min.X, Y: r.Max.Y}, r.Min})
+}
+
+// paddingLine is a plotter.Line that gives the plot, as glyph boxes, only
+// those of its points that can set the padding around the data area
+// (paddingBoxes). A plotter.Line gives a box of its line width at every
+// point, and the plot asks for them again for each padding it computes;
+// for a few hundred ROC curves of hundreds of points that was most of the
+// memory a report allocated.
+type paddingLine struct{ *plotter.Line }
+
+// GlyphBoxes implements plot.GlyphBoxer.
+func (l paddingLine) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
+	return paddingBoxes(p, l.XYs, 0.5*l.LineStyle.Width)
+}
+
+// paddingScatter is a plotter.Scatter of one glyph style that gives the
+// plot only the glyph boxes that can set its padding (paddingBoxes).
+type paddingScatter struct{ *plotter.Scatter }
+
+// GlyphBoxes implements plot.GlyphBoxer.
+func (sc paddingScatter) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
+	if sc.GlyphStyleFunc != nil {
+		return sc.Scatter.GlyphBoxes(p) // boxes of several sizes
+	}
+	return paddingBoxes(p, sc.XYs, sc.GlyphStyle.Radius)
+}
+
+// paddingBoxes returns, of the boxes of half-side r around the points xys
+// (what a plotter.Line or a one-style plotter.Scatter gives), the first
+// box of least and of greatest x, and of least and of greatest y, among
+// the points inside the axes' ranges. The plot pads by the outermost box
+// on each side (gonum plot's leftMost, rightMost, bottomMost and topMost,
+// over boxes inside the ranges), and these boxes all have one size, so
+// the four give it the same padding as all of them (TestPaddingBoxes).
+func paddingBoxes(p *plot.Plot, xys plotter.XYs, r vg.Length) []plot.GlyphBox {
+	if r <= 0 {
+		return nil // boxes of no size pad nothing
+	}
+	var ext [4]plot.GlyphBox // least x, greatest x, least y, greatest y
+	found := false
+	for i := range xys {
+		x, y := p.X.Norm(xys[i].X), p.Y.Norm(xys[i].Y)
+		if !(x >= 0 && x <= 1 && y >= 0 && y <= 1) {
+			continue // outside the ranges (or NaN): never padded for
+		}
+		b := plot.GlyphBox{X: x, Y: y, Rectangle: vg.Rectangle{Min: vg.Point{X: -r, Y: -r}, Max: vg.Point{X: r, Y: r}}}
+		if !found {
+			ext, found = [4]plot.GlyphBox{b, b, b, b}, true
+			continue
+		}
+		if x < ext[0].X {
+			ext[0] = b
+		}
+		if x > ext[1].X {
+			ext[1] = b
+		}
+		if y < ext[2].Y {
+			ext[2] = b
+		}
+		if y > ext[3].Y {
+			ext[3] = b
+		}
+	}
+	if !found {
+		return nil
+	}
+	return ext[:]
 }

@@ -2,17 +2,13 @@ package report
 
 import (
 	"bytes"
-	"encoding/binary"
 	"fmt"
-	"hash/crc32"
 	"image"
 	"image/color"
-	"image/png"
-	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -63,46 +59,89 @@ type renderedFigure struct {
 	svg []byte
 }
 
-// writeFigures renders every figure as SVG, PDF and PNG into figDir. The
-// renderings run in parallel (each on its own canvas) and are written in a
-// fixed order afterwards, so the files do not depend on the schedule.
-func writeFigures(figDir string, r *Results) ([]renderedFigure, error) {
+// recovered returns fn's error, or an error naming what for a panic in fn
+// (a bug, in our code or a library's): run on a goroutine of its own, a
+// panic would end the program past the command's recovery.
+func recovered(what string, fn func() error) (err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			err = fmt.Errorf("report: %s: internal error: %v", what, v)
+		}
+	}()
+	return fn()
+}
+
+// renderOrder is the order the renderings start in: the SVGs first, since
+// the page inlines them all (it is built while the other formats are
+// drawn), then the PNGs, the dearest, then the PDFs.
+var renderOrder = []string{"svg", "png", "pdf"}
+
+// writeFigures renders every figure of fs as SVG, PDF and PNG into figDir
+// and, once every SVG is drawn, calls withSVGs with them beside the other
+// renderings (not when one failed). The renderings run in parallel, at most GOMAXPROCS at once,
+// each on its own canvas, and each file is written (synced, renamed) as
+// soon as it is drawn, outside that limit, so that waiting on the disk
+// overlaps the drawing. No file depends on the schedule. It returns the
+// first error in a fixed order: the figures in order, each in
+// figureFormats order, then withSVGs's; files drawn without error are
+// written even when another fails.
+func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) error) error {
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
-		return nil, fmt.Errorf("report: create %s: %w", figDir, err)
+		return fmt.Errorf("report: create %s: %w", figDir, err)
 	}
-	fs := figures(r)
-	n := len(fs) * len(figureFormats)
-	data := make([][]byte, n)
-	errs := make([]error, n)
+	errs := make([][]error, len(fs))
+	for k := range errs {
+		errs[k] = make([]error, len(figureFormats))
+	}
+	svgs := make([]renderedFigure, len(fs))
+	var svgsLeft, all sync.WaitGroup
+	svgsLeft.Add(len(fs))
 	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
-	var wg sync.WaitGroup
-	for i := range n {
-		wg.Add(1)
-		sem <- struct{}{}
-		go func() {
-			defer func() { <-sem; wg.Done() }()
-			data[i], errs[i] = render(fs[i/len(figureFormats)], figureFormats[i%len(figureFormats)])
-		}()
+	for _, format := range renderOrder {
+		j := slices.Index(figureFormats, format)
+		for k, f := range fs {
+			all.Add(1)
+			sem <- struct{}{}
+			go func() {
+				defer all.Done()
+				var data []byte
+				err := recovered("figure "+f.Name+" ("+format+")", func() (err error) {
+					data, err = render(f, format)
+					return err
+				})
+				<-sem
+				if err == nil {
+					err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
+				}
+				errs[k][j] = err
+				if format == "svg" {
+					svgs[k] = renderedFigure{fig: f, svg: data}
+					svgsLeft.Done()
+				}
+			}()
+		}
 	}
-	wg.Wait()
-	var out []renderedFigure
-	for k, f := range fs {
-		rf := renderedFigure{fig: f}
-		for j, format := range figureFormats {
-			i := k*len(figureFormats) + j
-			if errs[i] != nil {
-				return nil, errs[i]
-			}
-			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data[i]); err != nil {
-				return nil, err
-			}
-			if format == "svg" {
-				rf.svg = data[i]
+	var pageErr error
+	all.Add(1)
+	go func() {
+		defer all.Done()
+		svgsLeft.Wait()
+		for _, fe := range errs {
+			if fe[slices.Index(figureFormats, "svg")] != nil {
+				return // no page without every figure
 			}
 		}
-		out = append(out, rf)
+		pageErr = recovered("report.html", func() error { return withSVGs(svgs) })
+	}()
+	all.Wait()
+	for _, fe := range errs {
+		for _, err := range fe {
+			if err != nil {
+				return err
+			}
+		}
 	}
-	return out, nil
+	return pageErr
 }
 
 // pdfOnce fixes the PDF writer's dates and resource order, so that the
@@ -112,6 +151,18 @@ var pdfOnce sync.Once
 
 // render draws f in one format: "svg", "pdf" or "png" (at pngDPI on white).
 func render(f figure, format string) ([]byte, error) {
+	if format == "png" {
+		c := newPNGCanvas(f.W, f.H)
+		if err := f.draw(draw.New(c)); err != nil {
+			return nil, err
+		}
+		data, err := encodePNG(c.img, pngDPI)
+		pixBuffers.put(c.img.Pix)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure %s: write PNG: %w", f.Name, err)
+		}
+		return data, nil
+	}
 	var c vg.CanvasWriterTo
 	switch format {
 	case "svg":
@@ -124,18 +175,13 @@ func render(f figure, format string) ([]byte, error) {
 			fpdf.SetDefaultCatalogSort(true)
 		})
 		c = vgpdf.New(f.W, f.H)
-	case "png":
-		c = fastPNG{newPNGCanvas(f.W, f.H)}
 	default:
 		return nil, fmt.Errorf("report: figure %s: unknown format %q", f.Name, format)
 	}
+	// A white page under the drawing: the files paste onto any background.
 	dc := draw.New(c)
-	if format != "png" {
-		// A white page under the drawing: the files paste onto any
-		// background.
-		dc.SetColor(color.White)
-		dc.Fill(dc.Rectangle.Path())
-	}
+	dc.SetColor(color.White)
+	dc.Fill(dc.Rectangle.Path())
 	if err := f.draw(dc); err != nil {
 		return nil, err
 	}
@@ -143,11 +189,8 @@ func render(f figure, format string) ([]byte, error) {
 	if _, err := c.WriteTo(&buf); err != nil {
 		return nil, fmt.Errorf("report: figure %s: write %s: %w", f.Name, strings.ToUpper(format), err)
 	}
-	switch format {
-	case "svg":
+	if format == "svg" {
 		return fixSVG(buf.Bytes()), nil
-	case "png":
-		return withPNGResolution(buf.Bytes(), pngDPI)
 	}
 	return buf.Bytes(), nil
 }
@@ -159,81 +202,69 @@ func render(f figure, format string) ([]byte, error) {
 // at 300 dpi a two-column figure is 2067 x 2717 pixels, 22 MB, and the
 // copy took a quarter of writing the report. The canvas size is the
 // image's, rounded to whole pixels as NewWith rounds it.
-func newPNGCanvas(w, h vg.Length) *vgimg.Canvas {
+func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	px := func(l vg.Length) int { return int(l/vg.Inch*vg.Length(pngDPI) + 0.5) }
-	img := image.NewRGBA(image.Rect(0, 0, px(w), px(h)))
+	pw, ph := px(w), px(h)
+	// The pixels are a used buffer when one is free (NewWith paints
+	// every pixel).
+	// A new buffer has room for the largest figure (two columns by the
+	// page height), so that any later canvas can take it over.
+	img := &image.RGBA{Pix: pixBuffers.get(4*pw*ph, 4*px(twoColumns)*px(maxHeight)), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
 	ctx := gg.NewContextForRGBA(img)
 	ctx.SetLineCapButt()
 	ctx.InvertY()
 	// NewWith paints the image with its background colour, white by
 	// default (an image option excludes UseBackgroundColor).
-	return vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI))
-}
-
-// fastPNG writes a canvas as PNG with the fastest deflate level: the
-// report's figures are flat colours and lines, which compress well at any
-// level, and encoding at the default level was the largest part of writing
-// a report. The output is still deterministic.
-type fastPNG struct{ *vgimg.Canvas }
-
-// WriteTo implements io.WriterTo.
-func (c fastPNG) WriteTo(w io.Writer) (int64, error) {
-	cw := &countWriter{w: w}
-	enc := png.Encoder{CompressionLevel: png.BestSpeed}
-	err := enc.Encode(cw, c.Image())
-	return cw.n, err
-}
-
-// countWriter counts the bytes written through it.
-type countWriter struct {
-	w io.Writer
-	n int64
-}
-
-func (c *countWriter) Write(p []byte) (int, error) {
-	n, err := c.w.Write(p)
-	c.n += int64(n)
-	return n, err
-}
-
-// withPNGResolution adds a pHYs chunk after the header of a PNG stream,
-// so that programs that read the resolution see dpi (PNG specification,
-// section 11.3.5.3: pixels per metre, unit byte 1). gonum writes none.
-func withPNGResolution(data []byte, dpi int) ([]byte, error) {
-	const sig, ihdr = 8, 8 + 13 + 4 // signature; IHDR length, type, data, CRC
-	if len(data) < sig+ihdr || string(data[12:16]) != "IHDR" {
-		return nil, fmt.Errorf("report: PNG without a header")
-	}
-	ppm := uint32(math.Round(float64(dpi) / 0.0254))
-	chunk := make([]byte, 4+4+9+4)
-	binary.BigEndian.PutUint32(chunk[0:], 9)
-	copy(chunk[4:], "pHYs")
-	binary.BigEndian.PutUint32(chunk[8:], ppm)
-	binary.BigEndian.PutUint32(chunk[12:], ppm)
-	chunk[16] = 1
-	binary.BigEndian.PutUint32(chunk[17:], crc32.ChecksumIEEE(chunk[4:17]))
-	out := make([]byte, 0, len(data)+len(chunk))
-	out = append(out, data[:sig+ihdr]...)
-	out = append(out, chunk...)
-	return append(out, data[sig+ihdr:]...), nil
+	return newFastTextCanvas(vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI)), img)
 }
 
 // inlineSVG prepares an SVG document for inlining in HTML: drops the XML
 // prolog and comment and gives the root element an id, a role and a label.
 func inlineSVG(svg []byte, id, label string) string {
-	s := string(svg)
-	if i := strings.Index(s, "<svg"); i >= 0 {
-		s = s[i:]
+	i := bytes.Index(svg, []byte("<svg"))
+	if i < 0 {
+		return string(svg)
 	}
 	attrs := fmt.Sprintf(`<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
-	return strings.Replace(s, "<svg", attrs, 1)
+	return attrs + string(svg[i+len("<svg"):]) // one copy of the document
+}
+
+// svgFixes are fixSVG's replacements; no two can overlap.
+var svgFixes = [][2][]byte{
+	{[]byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `)},
+	{[]byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")},
 }
 
 // fixSVG makes embedded raster images fill their rectangle (the map
 // preview is stretched to the data extent, not letterboxed) and keeps their
 // cells sharp, and names fonts with the same widths as Liberation Sans
-// (Arial, Helvetica) for viewers that lack it.
+// (Arial, Helvetica) for viewers that lack it. It is bytes.ReplaceAll of
+// each of svgFixes in turn, in one pass into one buffer of the final
+// size.
 func fixSVG(svg []byte) []byte {
-	svg = bytes.ReplaceAll(svg, []byte("<image "), []byte(`<image preserveAspectRatio="none" style="image-rendering:pixelated" `))
-	return bytes.ReplaceAll(svg, []byte("font-family:Liberation Sans;"), []byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"))
+	n := len(svg)
+	next := make([]int, len(svgFixes)) // the next match of each, or -1
+	for k, f := range svgFixes {
+		n += bytes.Count(svg, f[0]) * (len(f[1]) - len(f[0]))
+		next[k] = bytes.Index(svg, f[0])
+	}
+	out := make([]byte, 0, n)
+	for r := 0; ; {
+		k := -1 // the fix that matches first
+		for q, at := range next {
+			if at >= 0 && (k < 0 || at < next[k]) {
+				k = q
+			}
+		}
+		if k < 0 {
+			return append(out, svg[r:]...)
+		}
+		out = append(append(out, svg[r:next[k]]...), svgFixes[k][1]...)
+		r = next[k] + len(svgFixes[k][0])
+		if i := bytes.Index(svg[r:], svgFixes[k][0]); i >= 0 {
+			next[k] = r + i
+		} else {
+			next[k] = -1
+		}
+	}
 }

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"flag"
+	"html/template"
 	"os"
 	"path/filepath"
 	"testing"
@@ -76,6 +77,59 @@ func TestPageGolden(t *testing.T) {
 			lo := max(0, i-80)
 			t.Errorf("%s: page differs from %s at byte %d:\n got ...%q\nwant ...%q", name, path, i,
 				got[lo:min(len(got), i+80)], want[lo:min(len(want), i+80)])
+		}
+	}
+}
+
+// TestTableBody wants htmlTable.Body to write what the page template's
+// loop over the cells wrote, escaping included: markup, quotes, plus
+// signs, a NUL, invalid UTF-8, U+FFFD and noncharacters in text and class.
+func TestTableBody(t *testing.T) {
+	loop := template.Must(template.New("").Parse(`{{range .}}<tr>{{range .}}<td{{with .Class}} class="{{.}}"{{end}}{{if .IsNum}} data-v="{{.DataV}}"{{end}}>{{.Text}}</td>{{end}}</tr>
+{{end}}`))
+	type view struct {
+		Text, Class, DataV string
+		IsNum              bool
+	}
+	odd := []string{"", "plain", `a<b>&"c"'d'`, "+0.031", "x\x00y", "bad\xffutf8", "\uFFFD \uFDD0 \uFFFF –", "n"}
+	var rows [][]cell
+	for i, s := range odd {
+		rows = append(rows, []cell{tc(s), {text: s, cls: odd[(i+2)%len(odd)]}, nc(-1.5e-7*float64(i), 3), dash})
+	}
+	var views [][]view
+	for _, row := range rows {
+		var vs []view
+		for _, c := range row {
+			vs = append(vs, view{Text: c.text, Class: c.cls, DataV: c.DataV(), IsNum: c.isN})
+		}
+		views = append(views, vs)
+	}
+	var want bytes.Buffer
+	if err := loop.Execute(&want, views); err != nil {
+		t.Fatal(err)
+	}
+	if got := string(table("t", nil, rows).Body()); got != want.String() {
+		t.Errorf("Body:\n%q\nthe template wrote:\n%q", got, want.String())
+	}
+}
+
+// TestInPlaceRewrites checks plainPlus and fixSVG, which rewrite without
+// bytes.ReplaceAll's copies, against bytes.ReplaceAll.
+func TestInPlaceRewrites(t *testing.T) {
+	for _, s := range []string{"", "plain", "&#43;", "&#43;&#43;x&#43;", "a&#4&#43;3;b", "&#43", "x&#43;0.031 y &amp;#43;"} {
+		want := bytes.ReplaceAll([]byte(s), []byte("&#43;"), []byte("+"))
+		if got := plainPlus([]byte(s)); !bytes.Equal(got, want) {
+			t.Errorf("plainPlus(%q) = %q, want %q", s, got, want)
+		}
+	}
+	for _, s := range []string{"", "<svg>", "<image x/><image y/>", "font-family:Liberation Sans;<image a/>font-family:Liberation Sans;",
+		"<imagefont-family:Liberation Sans; <image ", "<image <image font-family:Liberation Sans;font-family:Liberation Sans;"} {
+		want := []byte(s)
+		for _, f := range svgFixes {
+			want = bytes.ReplaceAll(want, f[0], f[1])
+		}
+		if got := fixSVG([]byte(s)); !bytes.Equal(got, want) {
+			t.Errorf("fixSVG(%q) = %q, want %q", s, got, want)
 		}
 	}
 }

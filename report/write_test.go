@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"errors"
 	"image/png"
 	"os"
 	"path/filepath"
@@ -10,6 +11,8 @@ import (
 	"strings"
 	"sync"
 	"testing"
+
+	"gonum.org/v1/plot/vg/draw"
 )
 
 // shared holds one report written from the analysed sample, reused by the
@@ -340,5 +343,52 @@ func TestThresholdTable(t *testing.T) {
 		if m := regexp.MustCompile(`(?i)\bp\s?roc\b`).Find(data); m != nil {
 			t.Errorf("%s shortens partial ROC to %q", f, m)
 		}
+	}
+}
+
+// TestWriteFiguresError: a figure that fails to draw gives its error (the
+// first in figure order, whatever finished first), the page is not built,
+// and the figures drawn without error are written.
+func TestWriteFiguresError(t *testing.T) {
+	r := analyzedSample(t)
+	good := metricsFigure(r)
+	fail := func(name string) figure {
+		f := good
+		f.Name = name
+		f.draw = func(draw.Canvas) error { return errors.New("cannot draw " + name) }
+		return f
+	}
+	dir := t.TempDir()
+	called := false
+	err := writeFigures(dir, []figure{good, fail("a"), fail("b")}, func([]renderedFigure) error {
+		called = true
+		return nil
+	})
+	if err == nil || err.Error() != "cannot draw a" {
+		t.Errorf("error %v, want the first figure's (cannot draw a)", err)
+	}
+	if called {
+		t.Error("the page was built without every figure")
+	}
+	for _, format := range figureFormats {
+		if _, err := os.Stat(filepath.Join(dir, good.Name+"."+format)); err != nil {
+			t.Errorf("%s.%s not written: %v", good.Name, format, err)
+		}
+		if _, err := os.Stat(filepath.Join(dir, "a."+format)); err == nil {
+			t.Errorf("a.%s written", format)
+		}
+	}
+}
+
+// TestWriteFiguresPanic: a figure whose drawing panics (a bug) gives an
+// error naming it instead of ending the program from a goroutine.
+func TestWriteFiguresPanic(t *testing.T) {
+	r := analyzedSample(t)
+	bad := metricsFigure(r)
+	bad.Name = "bad"
+	bad.draw = func(draw.Canvas) error { panic("out of range") }
+	err := writeFigures(t.TempDir(), []figure{metricsFigure(r), bad}, func([]renderedFigure) error { return nil })
+	if err == nil || !strings.Contains(err.Error(), "figure bad (svg): internal error: out of range") {
+		t.Errorf("error %v, want the SVG's internal error", err)
 	}
 }

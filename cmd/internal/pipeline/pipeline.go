@@ -168,21 +168,8 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 		if err := outfile.Write(filepath.Join(s.stage, "extents.csv"), extentsCSV(s.res.Extents), 0o666); err != nil {
 			return nil, WriteFailed(err)
 		}
-	} else {
-		if err := s.writeFamily(); err != nil {
-			return nil, err
-		}
-		if err := s.timed("analysis", s.analyse); err != nil {
-			return nil, err
-		}
-		if err := s.timed("results.json, scores.csv and omitted_points.gpkg written", s.writeResults); err != nil {
-			return nil, err
-		}
-		t0 := time.Now()
-		if err := report.Write(s.stage, s.res); err != nil {
-			return nil, WriteFailed(err)
-		}
-		s.logf("report written in %.2f s", time.Since(t0).Seconds())
+	} else if err := s.finishScores(); err != nil {
+		return nil, err
 	}
 	s.libraryMessages()
 	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(s.start).Seconds())
@@ -193,6 +180,72 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 		return nil, err
 	}
 	return s.res, nil
+}
+
+// finishScores writes the family, analyses the scores and writes the
+// results and the report, overlapping what does not depend on each other:
+// extents.gpkg is written during the analysis (which does not read what
+// it writes), and results.json, scores.csv and omitted_points.gpkg while
+// the report is drawn (both only read the analysed results). Every file
+// is written whole by one goroutine, so no output depends on the
+// schedule; the phases are logged in a fixed order once both sides of a
+// pair are done, and the first error in that order is returned.
+func (s *Study) finishScores() error {
+	var famDur time.Duration
+	famErr := make(chan error, 1)
+	go func() {
+		t0 := time.Now()
+		err := recovered("writing extents.gpkg", s.writeFamilyFiles)
+		famDur = time.Since(t0)
+		famErr <- err
+	}()
+	t0 := time.Now()
+	err := s.analyse()
+	anaDur := time.Since(t0)
+	ferr := <-famErr
+	s.logf("extents.gpkg written in %.2f s (during the analysis)", famDur.Seconds())
+	s.logf("analysis in %.2f s", anaDur.Seconds())
+	if fault.IsInternal(ferr) {
+		return ferr
+	} else if ferr != nil {
+		return WriteFailed(ferr)
+	}
+	if err != nil {
+		return err
+	}
+	var resDur time.Duration
+	resErr := make(chan error, 1)
+	go func() {
+		t0 := time.Now()
+		err := recovered("writing the results files", s.writeResults)
+		resDur = time.Since(t0)
+		resErr <- err
+	}()
+	t0 = time.Now()
+	err = report.Write(s.stage, s.res)
+	repDur := time.Since(t0)
+	rerr := <-resErr
+	s.logf("results.json, scores.csv and omitted_points.gpkg written in %.2f s (while the report was drawn)", resDur.Seconds())
+	s.logf("report written in %.2f s", repDur.Seconds())
+	if rerr != nil {
+		return rerr
+	}
+	if err != nil {
+		return WriteFailed(err)
+	}
+	return nil
+}
+
+// recovered returns fn's error, or an internal error naming what for a
+// panic in fn (a bug): on a goroutine of its own, a panic would end the
+// program past the command's recovery.
+func recovered(what string, fn func() error) (err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			err = fault.Internal(fmt.Errorf("%s: %v", what, v))
+		}
+	}()
+	return fn()
 }
 
 // writeResults writes results.json, scores.csv and omitted_points.gpkg
@@ -267,15 +320,21 @@ func (s *Study) libraryMessages() {
 // writeFamily exports the (clipped) family: extents.gpkg and, when asked,
 // extents.tif.
 func (s *Study) writeFamily() error {
-	if err := s.timed("extents.gpkg written", func() error {
-		return s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg"))
-	}); err != nil {
+	if err := s.timed("extents.gpkg written", s.writeFamilyFiles); err != nil {
 		return WriteFailed(err)
 	}
+	return nil
+}
+
+// writeFamilyFiles writes extents.gpkg and, when asked, extents.tif. It
+// only reads the family and logs nothing, so it may run beside the
+// analysis.
+func (s *Study) writeFamilyFiles() error {
+	if err := s.fam.WriteGeoPackage(filepath.Join(s.stage, "extents.gpkg")); err != nil {
+		return err
+	}
 	if s.o.MembershipTIFF {
-		if err := s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif")); err != nil {
-			return WriteFailed(err)
-		}
+		return s.fam.WriteMembershipTIFF(filepath.Join(s.stage, "extents.tif"))
 	}
 	return nil
 }

@@ -1,0 +1,196 @@
+package report
+
+import (
+	"image"
+	"image/color"
+	"math"
+	"sync"
+
+	"golang.org/x/image/math/fixed"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgimg"
+)
+
+// pngCanvas is a vgimg canvas that draws unrotated, untransformed text
+// itself. vgimg hands each glyph to gg, which composites it through
+// golang.org/x/image/draw's general bilinear transform (a colour
+// conversion and an interface call per pixel) even when, as for every
+// horizontal label, the transform is the identity; that was the largest
+// part of drawing a text-heavy figure at 300 dpi. Here such a glyph is
+// composited directly on the image's pixels with the same integer
+// arithmetic, so the pixels are the same bit for bit (TestPNGTextSame).
+// Text under a rotation, translation or scaling goes to vgimg as before.
+type pngCanvas struct {
+	*vgimg.Canvas
+	img *image.RGBA
+	// state mirrors the canvas's Push/Pop stack: the colour and whether a
+	// transform is in effect.
+	state []textState
+	// slowText sends all text to vgimg (the reference in tests).
+	slowText bool
+}
+
+type textState struct {
+	color       color.Color
+	transformed bool
+}
+
+func newFastTextCanvas(c *vgimg.Canvas, img *image.RGBA) *pngCanvas {
+	return &pngCanvas{Canvas: c, img: img, state: []textState{{color: color.Black}}}
+}
+
+func (c *pngCanvas) top() *textState { return &c.state[len(c.state)-1] }
+
+// SetColor implements vg.Canvas.
+func (c *pngCanvas) SetColor(clr color.Color) {
+	if clr == nil {
+		clr = color.Black
+	}
+	c.top().color = clr
+	c.Canvas.SetColor(clr)
+}
+
+// Rotate implements vg.Canvas.
+func (c *pngCanvas) Rotate(t float64) {
+	c.top().transformed = true
+	c.Canvas.Rotate(t)
+}
+
+// Translate implements vg.Canvas.
+func (c *pngCanvas) Translate(pt vg.Point) {
+	c.top().transformed = true
+	c.Canvas.Translate(pt)
+}
+
+// Scale implements vg.Canvas.
+func (c *pngCanvas) Scale(x, y float64) {
+	c.top().transformed = true
+	c.Canvas.Scale(x, y)
+}
+
+// Push implements vg.Canvas.
+func (c *pngCanvas) Push() {
+	c.state = append(c.state, *c.top())
+	c.Canvas.Push()
+}
+
+// Pop implements vg.Canvas.
+func (c *pngCanvas) Pop() {
+	c.state = c.state[:len(c.state)-1]
+	c.Canvas.Pop()
+}
+
+// FillString implements vg.Canvas. It is vgimg's FillString (gg's
+// DrawString under the identity matrix) with each glyph composited by
+// drawGlyph.
+func (c *pngCanvas) FillString(fnt font.Face, pt vg.Point, str string) {
+	if c.slowText || c.top().transformed {
+		c.Canvas.FillString(fnt, pt, str)
+		return
+	}
+	if fnt.Font.Size == 0 {
+		return
+	}
+	dpi := c.DPI()
+	face := fnt.FontFace(dpi)
+	defer face.Close()
+	_, h := c.Size()
+	x, y := pt.X.Dots(dpi), h.Dots(dpi)-pt.Y.Dots(dpi)
+	dot := fixed.Point26_6{X: fixed.Int26_6(math.Round(x * 64)), Y: fixed.Int26_6(math.Round(y * 64))}
+	sr, sg, sb, sa := c.top().color.RGBA()
+	prev := rune(-1)
+	for _, r := range str {
+		if prev >= 0 {
+			dot.X += face.Kern(prev, r)
+		}
+		dr, mask, maskp, advance, ok := face.Glyph(dot, r)
+		if !ok {
+			continue
+		}
+		drawGlyph(c.img, dr, mask, maskp, [4]uint32{sr, sg, sb, sa})
+		dot.X += advance
+		prev = r
+	}
+}
+
+// drawGlyph composites the colour src (alpha-premultiplied, 16 bits per
+// channel) through mask onto dst over the rectangle dr, mask pixel maskp
+// at dr.Min: for each channel, with the mask's alpha m and the colour's
+// alpha a (all in 0..0xffff),
+//
+//	p = src * m / 0xffff,  d16 = d * 0x101,
+//	d' = (d16 * (0xffff - a*m/0xffff) / 0xffff + p) >> 8
+//
+// which is golang.org/x/image/draw's Over through a bilinear kernel whose
+// source pixels fall exactly on the destination's (the weights are 1 and
+// 0), followed by image.RGBA's conversion from 16 to 8 bits.
+func drawGlyph(dst *image.RGBA, dr image.Rectangle, mask image.Image, maskp image.Point, src [4]uint32) {
+	r := dr.Intersect(dst.Rect)
+	if r.Empty() {
+		return
+	}
+	alpha, _ := mask.(*image.Alpha)
+	for y := r.Min.Y; y < r.Max.Y; y++ {
+		row := dst.Pix[dst.PixOffset(r.Min.X, y):]
+		for x := r.Min.X; x < r.Max.X; x++ {
+			mx, my := maskp.X+x-dr.Min.X, maskp.Y+y-dr.Min.Y
+			var ma uint32
+			if alpha != nil {
+				ma = uint32(alpha.AlphaAt(mx, my).A) * 0x101
+			} else {
+				_, _, _, ma = mask.At(mx, my).RGBA()
+			}
+			if ma == 0 {
+				continue // d' = d
+			}
+			pa := src[3] * ma / 0xffff
+			pa1 := 0xffff - pa
+			d := row[4*(x-r.Min.X) : 4*(x-r.Min.X)+4 : 4*(x-r.Min.X)+4]
+			for k := range 4 {
+				p := src[k] * ma / 0xffff
+				if k < 3 && p > pa {
+					p = pa
+				}
+				d[k] = uint8(uint16(uint32(d[k])*0x101*pa1/0xffff+p) >> 8)
+			}
+		}
+	}
+}
+
+// pixBuffers keeps the pixel buffers of finished PNG canvases for the next
+// ones. A figure at 300 dpi is up to 22 MB of pixels; taking fresh memory
+// for each cost page faults and zeroing, about a tenth of writing a
+// report. At most maxFree buffers are kept (as many as figures are drawn
+// at once on a small machine); the rest go to the garbage collector.
+var pixBuffers bufferList
+
+const maxFree = 4
+
+type bufferList struct {
+	mu   sync.Mutex
+	free [][]byte
+}
+
+// get returns a buffer of n bytes, with any content: a free one, or a new
+// one with room for at least room bytes.
+func (l *bufferList) get(n, room int) []byte {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	for i, b := range l.free {
+		if cap(b) >= n {
+			l.free = append(l.free[:i], l.free[i+1:]...)
+			return b[:n]
+		}
+	}
+	return make([]byte, n, max(n, room))
+}
+
+// put keeps b for a later get; b must no longer be used.
+func (l *bufferList) put(b []byte) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if len(l.free) < maxFree {
+		l.free = append(l.free, b)
+	}
+}
