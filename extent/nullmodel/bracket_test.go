@@ -98,31 +98,7 @@ func TestBracketContainsDistance(t *testing.T) {
 					walkTiles(tc.w, tc.h, bs[0], bs[1], mask, [][]float64{lo, hi}, func(x0, y0, w, h int, n []uint64, bufs [][]float64) {
 						f.Bracket(x0, y0, w, h, n, layout, bufs[0], bufs[1])
 					})
-					exact, bad := 0, 0
-					for i, d := range want {
-						if masked && need[i] == 0 {
-							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
-								t.Fatalf("cell %d not needed: bracket [%v, %v], want NaN", i, lo[i], hi[i])
-							}
-							continue
-						}
-						b1, h1 := layout.Locate(0 - hi[i])
-						b2, h2 := layout.Locate(0 - lo[i])
-						ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
-						if lo[i] == hi[i] {
-							ok = lo[i] == d
-							exact++
-						}
-						if !ok {
-							if bad < 5 {
-								t.Errorf("blocks %v masked %v cell %d: bracket [%.9f, %.9f], distance %.9f", bs, masked, i, lo[i], hi[i], d)
-							}
-							bad++
-						}
-					}
-					if bad > 0 {
-						t.Fatalf("blocks %v masked %v: %d bad brackets", bs, masked, bad)
-					}
+					exact := checkBrackets(t, fmt.Sprintf("blocks %v masked %v", bs, masked), want, lo, hi, mask, layout)
 					if !masked {
 						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, len(want), 100*float64(exact)/float64(len(want)))
 						key := append(append([]float64{}, lo...), hi...)
@@ -254,4 +230,40 @@ func TestChordBracket(t *testing.T) {
 			t.Fatalf("chord %.3f m: bracket %.6f m wide", d, w)
 		}
 	}
+}
+
+// checkBrackets checks Bracket's output lo, hi against the exact distances
+// want: a cell not needed (need non-nil and its word 0) or with no
+// distance (NaN) has a NaN bracket; any other holds its distance, is no
+// wider than 2 BracketTol of its lower end and has both ends (negated, as
+// the pass scores them) in one bin of layout, or is exact (lo == hi ==
+// distance). It returns the number of exact cells; label names the case.
+func checkBrackets(t *testing.T, label string, want, lo, hi []float64, need []uint64, layout floorBins) int {
+	t.Helper()
+	exact, bad := 0, 0
+	for i, d := range want {
+		if need != nil && need[i] == 0 || math.IsNaN(d) {
+			if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
+				t.Fatalf("%s cell %d (distance %v): bracket [%v, %v], want NaN", label, i, d, lo[i], hi[i])
+			}
+			continue
+		}
+		b1, h1 := layout.Locate(0 - hi[i])
+		b2, h2 := layout.Locate(0 - lo[i])
+		ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
+		if lo[i] == hi[i] {
+			ok = lo[i] == d
+			exact++
+		}
+		if !ok {
+			if bad < 5 {
+				t.Errorf("%s cell %d: bracket [%.9f, %.9f], distance %.9f", label, i, lo[i], hi[i], d)
+			}
+			bad++
+		}
+	}
+	if bad > 0 {
+		t.Fatalf("%s: %d bad brackets", label, bad)
+	}
+	return exact
 }

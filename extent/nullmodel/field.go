@@ -141,6 +141,12 @@ func (t *tiler) tile(r0, r1, c0, c1 int) {
 			return
 		}
 	}
+	quarters(r0, r1, c0, c1, t.tile)
+}
+
+// quarters calls tile on each non-empty quarter of rows [r0,r1) and
+// columns [c0,c1) (a side of one cell is not split), in reading order.
+func quarters(r0, r1, c0, c1 int, tile func(r0, r1, c0, c1 int)) {
 	rm, cm := (r0+r1+1)/2, (c0+c1+1)/2
 	if rm == r1 {
 		rm = r0
@@ -150,7 +156,7 @@ func (t *tiler) tile(r0, r1, c0, c1 int) {
 	}
 	for _, q := range [4][4]int{{r0, rm, c0, cm}, {r0, rm, cm, c1}, {rm, r1, c0, cm}, {rm, r1, cm, c1}} {
 		if q[0] < q[1] && q[2] < q[3] {
-			t.tile(q[0], q[1], q[2], q[3])
+			tile(q[0], q[1], q[2], q[3])
 		}
 	}
 }

@@ -42,6 +42,25 @@ type projScratch struct {
 	asites     []projSite // the anchor's measured sites, for exact cells
 }
 
+// chordSites sets sc.sites to the sites of sc.cands with their ECEF
+// positions and chords from p, in increasing order of chord (insertion
+// sort: the lists hold a few sites), and returns them.
+func (sc *projScratch) chordSites(ix *geodesy.Index, p [3]float64) []projSite {
+	sc.sites = sc.sites[:0]
+	for _, k := range sc.cands {
+		lat, lon := ix.Site(k)
+		q := projECEF(lat, lon)
+		sc.sites = append(sc.sites, projSite{p: q, cc: dist3(p, q), lat: lat, lon: lon})
+	}
+	sites := sc.sites
+	for i := 1; i < len(sites); i++ {
+		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
+			sites[j], sites[j-1] = sites[j-1], sites[j]
+		}
+	}
+	return sites
+}
+
 // projAnchor is a site measured at a tile's anchor: its exact distance
 // and the sine and cosine of the azimuth towards it there.
 type projAnchor struct {
@@ -300,18 +319,7 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 		// A needed cell is its own centre, with a position: not reached.
 		return
 	}
-	rm, cm := (r0+r1+1)/2, (c0+c1+1)/2
-	if rm == r1 {
-		rm = r0
-	}
-	if cm == c1 {
-		cm = c0
-	}
-	for _, q := range [4][4]int{{r0, rm, c0, cm}, {r0, rm, cm, c1}, {rm, r1, c0, cm}, {rm, r1, cm, c1}} {
-		if q[0] < q[1] && q[2] < q[3] {
-			b.tile(q[0], q[1], q[2], q[3])
-		}
-	}
+	quarters(r0, r1, c0, c1, b.tile)
 }
 
 // cells brackets the needed cells of the tile from the candidates in
@@ -319,18 +327,7 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 // the chord from it to every needed cell.
 func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 	sc := b.sc
-	sc.sites = sc.sites[:0]
-	for _, k := range sc.cands {
-		lat, lon := b.f.ix.Site(k)
-		p := projECEF(lat, lon)
-		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pc, p), lat: lat, lon: lon})
-	}
-	sites := sc.sites
-	for i := 1; i < len(sites); i++ {
-		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
-			sites[j], sites[j-1] = sites[j-1], sites[j]
-		}
-	}
+	sites := sc.chordSites(b.f.ix, pc)
 	// A site q is farther by chord than the first (P_0) from every cell p
 	// of the tile when
 	//
@@ -487,18 +484,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 	_, d1 := ix.NearestBounds(alat, alon, 0)
 	slack := 2*tmax + 2*(1e-3+1e-9*d1) + 1
 	sc.cands = ix.Within(alat, alon, d1+slack, sc.cands[:0])
-	sc.sites = sc.sites[:0]
-	for _, k := range sc.cands {
-		lat, lon := ix.Site(k)
-		p := projECEF(lat, lon)
-		sc.sites = append(sc.sites, projSite{p: p, cc: dist3(pa, p), lat: lat, lon: lon})
-	}
-	sites := sc.sites
-	for i := 1; i < len(sites); i++ {
-		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
-			sites[j], sites[j-1] = sites[j-1], sites[j]
-		}
-	}
+	sites := sc.chordSites(ix, pa)
 	best := math.Inf(1)
 	an := sc.anchor[:0]
 	for _, st := range sites {

@@ -1,6 +1,7 @@
 package nullmodel
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -132,31 +133,7 @@ func TestBracketProjected(t *testing.T) {
 					walkTiles(tc.w, tc.h, bs[0], bs[1], need, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
 						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
 					})
-					exact, bad := 0, 0
-					for i, d := range want {
-						if masked && need[i] == 0 || math.IsNaN(d) {
-							if !math.IsNaN(lo[i]) || !math.IsNaN(hi[i]) {
-								t.Fatalf("blocks %v mask %d cell %d (distance %v): bracket [%v, %v], want NaN", bs, m, i, d, lo[i], hi[i])
-							}
-							continue
-						}
-						b1, h1 := layout.Locate(0 - hi[i])
-						b2, h2 := layout.Locate(0 - lo[i])
-						ok := lo[i] <= d && d <= hi[i] && b1 == b2 && h1 == h2 && hi[i]-lo[i] <= 2*BracketTol*lo[i]
-						if lo[i] == hi[i] {
-							ok = lo[i] == d
-							exact++
-						}
-						if !ok {
-							if bad < 5 {
-								t.Errorf("blocks %v mask %d cell %d: bracket [%.9f, %.9f], distance %.9f", bs, m, i, lo[i], hi[i], d)
-							}
-							bad++
-						}
-					}
-					if bad > 0 {
-						t.Fatalf("blocks %v mask %d: %d bad brackets", bs, m, bad)
-					}
+					exact := checkBrackets(t, fmt.Sprintf("blocks %v mask %d", bs, m), want, lo, hi, need, layout)
 					valid := n - nan
 					if !masked {
 						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, valid, 100*float64(exact)/float64(valid))

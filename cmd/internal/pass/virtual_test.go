@@ -32,6 +32,13 @@ func nullSetup(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.
 	if err != nil {
 		t.Fatal(err)
 	}
+	return nullOn(g, ix)
+}
+
+// nullOn returns the distance-only null of the sites of ix on g with
+// nullSetup's two-member family: every cell but 1 in 97 and its western
+// half.
+func nullOn(g *extent.Grid, ix *geodesy.Index) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
 	f := DistanceNull(g, ix)
 	mask := make([]uint64, g.Cells())
 	for i := range mask {
@@ -64,18 +71,7 @@ func nullSetupProjected(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field,
 	if err != nil {
 		t.Fatal(err)
 	}
-	f := DistanceNull(g, ix)
-	mask := make([]uint64, g.Cells())
-	for i := range mask {
-		if i%97 != 0 {
-			mask[i] = 1
-			if i%g.Width < g.Width/2 {
-				mask[i] |= 2
-			}
-		}
-	}
-	fam := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
-	return g, NewVirtual(g, f), f, fam
+	return nullOn(g, ix)
 }
 
 // maskFamily makes a family on g from per-cell membership words (bit k:
