@@ -133,7 +133,7 @@ func (f *Family) Has(k, cell int) bool {
 func (f *Family) Runs(k, row int) []int32 { return f.cells[k].rows[row] }
 
 // SpanScratch is reusable scratch memory for Span, one per goroutine.
-type SpanScratch struct{ a, b, out []int32 }
+type SpanScratch struct{ a, b, c, out []int32 }
 
 // Span returns the cells of member k in row and columns [c0,c1), minus
 // the cells of member inner (none when inner < 0), as runs c0, c1, ...
@@ -147,6 +147,43 @@ func (f *Family) Span(k, inner, row, c0, c1 int, s *SpanScratch) []int32 {
 	s.b = clipWindow(s.b[:0], f.cells[inner].rows[row], int32(c0), int32(c1))
 	s.out = minus(s.out[:0], s.a, s.b)
 	return s.out
+}
+
+// Rings calls emit(k, runs) for each member k of seq in order, seq
+// nested and listed from smallest to largest (a sequence of Groups), with
+// the cells of k in row and columns [c0,c1) minus those of the member
+// before it in seq: Span(k, previous, ...) for each, but each member's row
+// is clipped once, and none when the largest member has no cell there
+// (every runs is then empty). runs lives in s and is valid during the
+// call only.
+func (f *Family) Rings(seq []int, row, c0, c1 int, s *SpanScratch, emit func(k int, runs []int32)) {
+	outer := seq[len(seq)-1]
+	s.c = clipWindow(s.c[:0], f.cells[outer].rows[row], int32(c0), int32(c1))
+	if len(s.c) == 0 {
+		for _, k := range seq {
+			emit(k, nil)
+		}
+		return
+	}
+	prev := s.a[:0]
+	for _, k := range seq {
+		cur := s.c
+		if k != outer {
+			cur = clipWindow(s.b[:0], f.cells[k].rows[row], int32(c0), int32(c1))
+		}
+		ring := cur
+		if len(prev) > 0 {
+			s.out = minus(s.out[:0], cur, prev)
+			ring = s.out
+		}
+		emit(k, ring)
+		if k != outer {
+			// k's runs are the next member's inner ones; the buffer of
+			// the previous ones takes the next clip.
+			s.a, s.b = cur, prev[:0]
+			prev = cur
+		}
+	}
 }
 
 // clipWindow appends the runs of r intersected with [c0,c1) to dst.

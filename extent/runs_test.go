@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 	"slices"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // cellsOf expands runs into a per-column membership of a row of width w.
@@ -182,6 +184,78 @@ func TestRepeatAdd(t *testing.T) {
 		}
 		if got, want := repeatAdd(s, a, n), loop(s, a, n); math.Float64bits(got) != math.Float64bits(want) {
 			t.Fatalf("repeatAdd(%v, %v, %d) = %v, loop gives %v", s, a, n, got, want)
+		}
+	}
+}
+
+// TestRingsMatchSpan checks Family.Rings against Span(k, previous member)
+// for every member of a nested sequence, on random nested members (each
+// row's runs of member k+1 hold those of k, with rows where the largest
+// member is empty) and random column windows, reusing one scratch.
+func TestRingsMatchSpan(t *testing.T) {
+	g, err := NewGrid(200, 40, [6]float64{0, 0.01, 0, 1, 0, -0.01}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	rng := rand.New(rand.NewPCG(3, 4))
+	const members = 5
+	rows := make([][members][]int32, g.Height)
+	for row := range rows {
+		if row%7 == 3 {
+			continue // no member here
+		}
+		var prev []int32
+		for k := range members {
+			// Member k: member k-1's runs widened, plus a few new runs.
+			var r []int32
+			for i := 0; i < len(prev); i += 2 {
+				r = append(r, max(prev[i]-int32(rng.IntN(4)), 0), min(prev[i+1]+int32(rng.IntN(4)), 200))
+			}
+			for range rng.IntN(3) {
+				a := int32(rng.IntN(190))
+				r = append(r, a, a+1+int32(rng.IntN(10)))
+			}
+			rows[row][k] = r
+			prev = r
+		}
+	}
+	ms := make([]Member, members)
+	seq := make([]int, members)
+	for k := range ms {
+		ms[k] = Member{ID: fmt.Sprint(k), Status: vocab.StatusOK}
+		seq[k] = k
+	}
+	f := NewFamilyFromRuns(g, ms, func(k, row int) []int32 { return rows[row][k] })
+	// The runs were merged: re-check nesting on the family itself.
+	for k := 1; k < members; k++ {
+		if !f.nested(k-1, k) {
+			t.Fatalf("member %d not inside member %d", k-1, k)
+		}
+	}
+	var s, ref SpanScratch
+	for row := range g.Height {
+		for range 20 {
+			c0 := rng.IntN(200)
+			c1 := c0 + 1 + rng.IntN(200-c0)
+			next := 0
+			f.Rings(seq, row, c0, c1, &s, func(k int, runs []int32) {
+				if k != seq[next] {
+					t.Fatalf("row %d: member %d emitted, want %d", row, k, seq[next])
+				}
+				inner := -1
+				if next > 0 {
+					inner = seq[next-1]
+				}
+				want := f.Span(k, inner, row, c0, c1, &ref)
+				if !slices.Equal(runs, want) && !(len(runs) == 0 && len(want) == 0) {
+					t.Fatalf("row %d window [%d,%d) member %d: Rings %v, Span %v", row, c0, c1, k, runs, want)
+				}
+				next++
+			})
+			if next != members {
+				t.Fatalf("row %d: %d members emitted, want %d", row, next, members)
+			}
 		}
 	}
 }

@@ -46,6 +46,8 @@ type workerState struct {
 	weights []int64
 	bins    []int32 // per column of the block row: layout bin, -1 when not scored
 	span    extent.SpanScratch
+	x0      int32              // the planned block's first column
+	emit    func(int, []int32) // addTargets, bound once
 
 	// The block's plan: row y's targets are targets[tRow[y]:tRow[y+1]],
 	// its segments segs[sRow[y]:sRow[y+1]] (sorted, disjoint).
@@ -113,7 +115,11 @@ func newWorkerState(bw, bh int) *workerState {
 
 // planBlock fills the block's targets, segments and signatures.
 func (ws *workerState) planBlock(fam *extent.Family, groups [][]int, b block) {
-	x0, x1 := int32(b.x0), b.x0+b.w
+	x1 := b.x0 + b.w
+	ws.x0 = int32(b.x0)
+	if ws.emit == nil {
+		ws.emit = ws.addTargets
+	}
 	ws.targets, ws.segs = ws.targets[:0], ws.segs[:0]
 	ws.tRow, ws.sRow = append(ws.tRow[:0], 0), append(ws.sRow[:0], 0)
 	clear(ws.sigIndex)
@@ -123,24 +129,7 @@ func (ws *workerState) planBlock(fam *extent.Family, groups [][]int, b block) {
 		row := b.y0 + y
 		t0 := len(ws.targets)
 		for _, seq := range groups {
-			outer := seq[len(seq)-1]
-			runs := fam.Span(outer, -1, row, b.x0, x1, &ws.span)
-			if len(runs) == 0 {
-				continue // the smaller members are inside it
-			}
-			if len(seq) > 1 {
-				inner := -1
-				for _, k := range seq[:len(seq)-1] {
-					for i, r := 0, fam.Span(k, inner, row, b.x0, x1, &ws.span); i < len(r); i += 2 {
-						ws.targets = append(ws.targets, target{r[i] - x0, r[i+1] - x0, int32(k)})
-					}
-					inner = k
-				}
-				runs = fam.Span(outer, inner, row, b.x0, x1, &ws.span)
-			}
-			for i := 0; i < len(runs); i += 2 {
-				ws.targets = append(ws.targets, target{runs[i] - x0, runs[i+1] - x0, int32(outer)})
-			}
+			fam.Rings(seq, row, b.x0, x1, &ws.span, ws.emit)
 		}
 		ts := ws.targets[t0:]
 		if y > 0 && slices.Equal(ts, ws.targets[prev:t0]) {
@@ -156,6 +145,15 @@ func (ws *workerState) planBlock(fam *extent.Family, groups [][]int, b block) {
 		prev = t0
 		ws.tRow = append(ws.tRow, len(ws.targets))
 		ws.sRow = append(ws.sRow, len(ws.segs))
+	}
+}
+
+// addTargets appends member k's runs, in block columns, to the row's
+// targets (the emit of Family.Rings, bound once as a method value).
+func (ws *workerState) addTargets(k int, runs []int32) {
+	x0 := ws.x0
+	for i := 0; i < len(runs); i += 2 {
+		ws.targets = append(ws.targets, target{runs[i] - x0, runs[i+1] - x0, int32(k)})
 	}
 }
 

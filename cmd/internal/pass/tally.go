@@ -46,22 +46,20 @@ func NullTally(fam *extent.Family, bg *nullmodel.Background) func(row, c0 int, v
 			sc.batch = sc.batch[:0]
 		}
 		sc.batch = sc.batch[:0]
-		for _, seq := range groups {
-			inner := -1
-			for _, k := range seq {
-				runs := fam.Span(k, inner, row, c0, c0+len(vals), &sc.span)
-				inner = k
-				if len(runs) == 0 {
-					continue
-				}
-				if len(sc.batch) > 0 && !slices.Equal(runs, sc.runs) {
-					flush()
-				}
-				if len(sc.batch) == 0 {
-					sc.runs = append(sc.runs[:0], runs...)
-				}
-				sc.batch = append(sc.batch, k)
+		add := func(k int, runs []int32) {
+			if len(runs) == 0 {
+				return
 			}
+			if len(sc.batch) > 0 && !slices.Equal(runs, sc.runs) {
+				flush()
+			}
+			if len(sc.batch) == 0 {
+				sc.runs = append(sc.runs[:0], runs...)
+			}
+			sc.batch = append(sc.batch, k)
+		}
+		for _, seq := range groups {
+			fam.Rings(seq, row, c0, c0+len(vals), &sc.span, add)
 		}
 		flush()
 	}

@@ -269,9 +269,7 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 		first := true
 		var mn, mx, rl, rh float64
 		for _, seq := range s.groups {
-			inner := -1
-			for _, k := range seq {
-				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
+			s.fam.Rings(seq, y0+y, x0, x0+w, &s.span, func(k int, runs []int32) {
 				if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
 					// The whole row: its extremes from ReadBlock's walk.
 					e := s.whole[y]
@@ -304,8 +302,7 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 				}
 				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
 				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
-				inner = k
-			}
+			})
 		}
 	}
 	for y := range h {
