@@ -620,7 +620,7 @@ func ringsFigures(r *Results) []figure {
 				f.Caption += fmt.Sprintf(" The rows, at least %.2g times the label height apart, do not fit one page: the chains continue in %s.", ringMinPitch, strings.Join(rest, ", "))
 			}
 		} else {
-			f.Caption = fmt.Sprintf("Continued from %s (read as there): %s.", ringPageName(pi-1), strings.Join(chains, "; "))
+			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))
 		}
 		f.H = lay.height(pi)
 		f.draw = func(dc draw.Canvas) error {
