@@ -327,7 +327,30 @@ func newRingCols(p ringPage) ringCols {
 			rc.labelW = max(rc.labelW, textWidth(s.w.rowLabel(i), minFontPt))
 		}
 	}
+	rc.labelW = min(rc.labelW, ringMaxLabelW)
 	return rc
+}
+
+// ringMaxLabelW is the most room the row names take (our choice, 30% of
+// the page's width): a longer name is shortened by fitLabel, so that the
+// data keep room however long the extents' IDs.
+const ringMaxLabelW = 0.3 * twoColumns
+
+// fitLabel returns s, or s cut to its start and end joined by "…" when it
+// is wider than w at the label size.
+func fitLabel(s string, w vg.Length) string {
+	if textWidth(s, minFontPt) <= w {
+		return s
+	}
+	r := []rune(s)
+	for cut := 1; cut < len(r); cut++ {
+		head := (len(r) - cut + 1) / 2
+		t := string(r[:head]) + "…" + string(r[head+cut:])
+		if textWidth(t, minFontPt) <= w {
+			return t
+		}
+	}
+	return "…"
 }
 
 // left is the room left of the data areas; right the room right of them.
@@ -369,7 +392,7 @@ func ringTexts(s ringSeg, da vg.Rectangle, rc ringCols) []ringText {
 	var ts []ringText
 	for i := s.from; i < s.to; i++ {
 		y := da.Max.Y - (vg.Length(i-s.from)+0.5)*pitch
-		ts = append(ts, ringText{s: s.w.rowLabel(i), x: da.Min.X - vg.Points(4), y: y, right: true},
+		ts = append(ts, ringText{s: fitLabel(s.w.rowLabel(i), rc.labelW), x: da.Min.X - vg.Points(4), y: y, right: true},
 			ringText{s: s.w.rowKind(i), x: da.Max.X + ringValueGap, y: y})
 		for k := range s.w.cs {
 			if v := s.w.rowValue(i, k); v != "" {

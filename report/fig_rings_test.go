@@ -19,6 +19,10 @@ func syntheticWaterfall(chain string, rows, models int, firstModel int) *chainWa
 	for i := range rows - 1 {
 		members = append(members, fmt.Sprintf("%s_minus%dkm", chain, 10*(rows-i)))
 	}
+	if rows%7 == 3 {
+		// An ID far longer than the room for row names.
+		members[len(members)-1] = strings.Repeat("very_long_extent_identifier_", 6) + chain
+	}
 	var steps []ChainStep
 	for i := 1; i < rows-1; i++ {
 		kind := StepRing
