@@ -89,7 +89,7 @@ func (s ringSeg) Plot(c draw.Canvas, p *plot.Plot) {
 			vals[i+1] = st.AUCOuter
 		}
 		vals[last] = cs.EndAUC
-		for i := max(s.from, 0); i < s.to; i++ {
+		for i := s.from; i < s.to; i++ {
 			y := trY(s.y(i, k))
 			var at float64 // where the row's drawing starts
 			switch {
@@ -300,13 +300,13 @@ func layoutRingPages(panels []*chainWaterfall, avail vg.Length, chrome func(ring
 	return pages
 }
 
-// ringCols is the horizontal layout of a page: room for the row labels
+// ringCols is the horizontal layout of the pages: room for the row names
 // left of the data, and right of it a column for the kind of value
 // ("AUC", "ring AUC", "no ring") and one column per model.
 type ringCols struct {
-	labelW      vg.Length // widest row label on the page
+	labelW      vg.Length // widest row name, at most ringMaxLabelW
 	kindW, colW vg.Length
-	models      int // most models in one panel of the page
+	models      int // most models in one panel
 }
 
 // Horizontal gaps of the right-hand columns, in points.
@@ -315,6 +315,7 @@ const (
 	ringColGap   = 6 * vg.Length(1) // between columns
 )
 
+// newRingCols sizes the columns for the pieces of p.
 func newRingCols(p ringPage) ringCols {
 	var rc ringCols
 	for _, s := range []string{"AUC", "ring AUC", "no ring"} {
