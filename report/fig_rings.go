@@ -263,13 +263,20 @@ type ringPage struct {
 // at most avail: each row ringRowPitch tall, whole panels where they fit;
 // a panel that does not fit in what is left of a page starts a new page
 // when it would fit on an empty one, and otherwise fills the page (with at
-// least ringMinPieceRows rows) and continues on the next. chrome gives a
+// least ringMinPieceRows rows) and continues on the next. The first null's
+// panel (models index -1; waterfallPanels puts them last) starts a new
+// page, so that ring_steps holds the models' chains. chrome gives a
 // piece's height besides its rows.
 func layoutRingPages(panels []*chainWaterfall, avail vg.Length, chrome func(ringSeg) vg.Length) []ringPage {
 	var pages []ringPage
 	var cur ringPage
-	for _, w := range panels {
+	for q, w := range panels {
 		pitch := ringRowPitch(len(w.cs))
+		if q > 0 && w.models[0] < 0 && panels[q-1].models[0] >= 0 && len(cur.segs) > 0 {
+			// The nulls' chains start a page of their own.
+			pages = append(pages, cur)
+			cur = ringPage{}
+		}
 		for from := 0; from < w.rows(); {
 			seg := ringSeg{w: w, from: from, to: w.rows()}
 			ch := chrome(seg)

@@ -176,6 +176,12 @@ func TestRingPagesSplit(t *testing.T) {
 	if total != 50 {
 		t.Errorf("long chain: %d of 50 rows drawn", total)
 	}
+	null := syntheticWaterfall("n", 3, 1, 0)
+	null.models[0] = -1
+	pages = layoutRingPages([]*chainWaterfall{a, null}, avail, chrome)
+	if len(pages) != 2 || pages[1].segs[0].w != null {
+		t.Errorf("a null's chain of 3 rows after a model's of 12, 20 to a page: %d pages, want the null on the second", len(pages))
+	}
 	if got := ringPageName(0) + " " + ringPageName(2); got != "ring_steps ring_steps_3" {
 		t.Errorf("page names %q", got)
 	}
