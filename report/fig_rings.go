@@ -1,87 +1,119 @@
 package report
 
 import (
+	"fmt"
 	"image/color"
 	"math"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
 
-// chainWaterfall draws one nested chain for every model: per model, the AUC
-// on the chain's first extent as a marker, one arrow per step from the AUC
-// before to the AUC after (solid for a ring of new background, dashed for
-// test records that first fall inside), and the AUC on the last extent as
-// a marker. Rows run from the top: start, one per step, end; within a row
-// each model has its own line. The numbers go in a column just right of
-// the data area.
+// chainWaterfall is one nested chain for one or more models with the same
+// steps: per model, the AUC on the chain's first extent as a marker, one
+// arrow per step from the AUC before to the AUC after (solid for a ring of
+// new background, dashed for test records that first fall inside), and
+// the AUC on the last extent as a marker. Rows run from the top: start,
+// one per step, end; within a row each model has its own line.
 type chainWaterfall struct {
 	steps  []ChainStep // the steps of the first model (all share them)
-	models []int       // index of each model in the figure's model list
+	models []int       // index of each model in Sensitivity.ModelNames, -1 for a null
 	cs     []*ChainSummary
+	marks  []draw.GlyphStyle // each model's marker (colour, shape), set by ringsFigure
 }
 
 // rows returns the number of rows: start, one per step, end.
-func (w chainWaterfall) rows() int { return len(w.steps) + 2 }
+func (w *chainWaterfall) rows() int { return len(w.steps) + 2 }
 
-// y returns the data coordinate of model k's line in row i (row 0 at the
-// top); rows are one model-line apart.
-func (w chainWaterfall) y(i, k int) float64 {
-	n := len(w.cs)
-	top := float64(w.rows()*(n+1)) - 1
-	return top - float64(i*(n+1)+k)
+// Row geometry of the ring_steps figure, in points at print size; our
+// choices. A row holds one line per model, ringLinePitch apart (a marker
+// is 4.8 pt across, an arrow head 5.2 pt), plus ringRowGap between rows;
+// it is never less than ringMinPitch times the height of the 8 pt row
+// labels, so that labels and values one row apart never touch. Rows that
+// do not fit on one page at that pitch continue on further pages (never
+// squeezed); a piece of a chain split over two pages has at least
+// ringMinPieceRows rows unless the whole chain is shorter.
+const (
+	ringLinePitch    = 5.5 * vg.Length(1)
+	ringRowGap       = 4 * vg.Length(1)
+	ringMinPitch     = 1.25
+	ringMinPieceRows = 3
+	// ringPanelGap is the space above each panel's title.
+	ringPanelGap = 6 * vg.Length(1)
+)
+
+// ringLabelH is the height of one line of text at the label size.
+func ringLabelH() vg.Length { return textStyle(minFontPt).Height("Ag") }
+
+// ringRowPitch is the height of one row of a panel of n models.
+func ringRowPitch(n int) vg.Length {
+	return max(ringMinPitch*ringLabelH(), vg.Length(n)*ringLinePitch+ringRowGap)
 }
 
-// rowCentre is the data coordinate of the middle of row i.
-func (w chainWaterfall) rowCentre(i int) float64 {
-	return (w.y(i, 0) + w.y(i, len(w.cs)-1)) / 2
+// ringSeg is rows [from, to) of a waterfall: a whole panel, or the piece
+// of one that fits on a page.
+type ringSeg struct {
+	w        *chainWaterfall
+	from, to int
 }
+
+func (s ringSeg) rows() int { return s.to - s.from }
+
+// y returns the data coordinate of model k's line in row i of the chain;
+// the data's y unit is one row, the segment's top row is at the top.
+func (s ringSeg) y(i, k int) float64 {
+	n := len(s.w.cs)
+	off := (float64(n-1)/2 - float64(k)) * float64(ringLinePitch/ringRowPitch(n))
+	return float64(s.to-i) - 0.5 + off
+}
+
+// in reports whether row i of the chain is in the segment.
+func (s ringSeg) in(i int) bool { return i >= s.from && i < s.to }
 
 // Plot implements plot.Plotter.
-func (w chainWaterfall) Plot(c draw.Canvas, p *plot.Plot) {
+func (s ringSeg) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
-	sty := textStyle(minFontPt)
-	sty.YAlign = draw.YCenter
+	w := s.w
 	connector := lineStyle(color.Gray{Y: 120}, 0.5, []vg.Length{vg.Points(1), vg.Points(1.5)})
+	last := w.rows() - 1
 	for k, cs := range w.cs {
-		mi := w.models[k]
-		col := modelColor(mi)
-		// Each number carries its model's marker.
-		label := func(y vg.Length, s string) {
-			wide := c // DrawGlyph skips points outside its canvas
-			wide.Max.X += vg.Points(20)
-			wide.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(2), Shape: modelGlyph(mi)}, vg.Point{X: c.Max.X + vg.Points(8), Y: y})
-			c.FillText(sty, vg.Point{X: c.Max.X + vg.Points(14), Y: y}, s)
-		}
-		mark := func(row int, v float64) {
-			pt := vg.Point{X: trX(v), Y: trY(w.y(row, k))}
-			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(2.4), Shape: modelGlyph(mi)}, pt)
-			label(pt.Y, "AUC "+f3(v))
-		}
-		mark(0, cs.StartAUC)
-		prev, prevY := cs.StartAUC, trY(w.y(0, k))
+		gs := w.marks[k]
+		gs.Radius = vg.Points(2.4)
+		col := gs.Color
+		// vals[i] is the AUC at the end of row i (the start of row i+1).
+		vals := make([]float64, w.rows())
+		vals[0] = cs.StartAUC
 		for i, st := range cs.Steps {
-			y := trY(w.y(i+1, k))
-			c.StrokeLine2(connector, trX(prev), prevY, trX(st.AUCInner), y)
+			vals[i+1] = st.AUCOuter
+		}
+		vals[last] = cs.EndAUC
+		for i := s.from; i < s.to; i++ {
+			y := trY(s.y(i, k))
+			var at float64 // where the row's drawing starts
+			switch {
+			case i == 0:
+				at = cs.StartAUC
+			case i == last:
+				at = cs.EndAUC
+			default:
+				at = cs.Steps[i-1].AUCInner
+			}
+			if i > 0 && s.in(i-1) {
+				c.StrokeLine2(connector, trX(vals[i-1]), trY(s.y(i-1, k)), trX(at), y)
+			}
+			if i == 0 || i == last {
+				c.DrawGlyph(gs, vg.Point{X: trX(at), Y: y})
+				continue
+			}
+			st := cs.Steps[i-1]
 			ls := lineStyle(col, 2.2, nil)
-			text := "new test records"
-			if st.Kind == StepRing {
-				text = "ring AUC –"
-				if st.AUCRingDefined {
-					text = "ring AUC " + f3(st.AUCRing)
-				}
-			} else {
+			if st.Kind != StepRing {
 				ls = lineStyle(col, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})
 			}
 			drawArrow(c, ls, trX(st.AUCInner), trX(st.AUCOuter), y)
-			label(y, text)
-			prev, prevY = st.AUCOuter, y
 		}
-		last := w.rows() - 1
-		y := trY(w.y(last, k))
-		c.StrokeLine2(connector, trX(prev), prevY, trX(cs.EndAUC), y)
-		mark(last, cs.EndAUC)
 	}
 }
 
@@ -94,7 +126,7 @@ func drawArrow(c draw.Canvas, ls draw.LineStyle, x0, x1, y vg.Length) {
 		dir = -1
 	}
 	if (x1-x0)*dir < head {
-		c.StrokeLine2(lineStyle(ls.Color, 0.8, nil), x1, y-vg.Points(3), x1, y+vg.Points(3))
+		c.StrokeLine2(lineStyle(ls.Color, 0.8, nil), x1, y-vg.Points(2.5), x1, y+vg.Points(2.5))
 		if x1 != x0 {
 			c.StrokeLine2(lineStyle(ls.Color, 1, nil), x0, y, x1, y)
 		}
@@ -104,8 +136,9 @@ func drawArrow(c draw.Canvas, ls draw.LineStyle, x0, x1, y vg.Length) {
 	c.FillPolygon(ls.Color, []vg.Point{{X: x1, Y: y}, {X: x1 - dir*head, Y: y + vg.Points(2.6)}, {X: x1 - dir*head, Y: y - vg.Points(2.6)}})
 }
 
-// DataRange implements plot.DataRanger.
-func (w chainWaterfall) DataRange() (xmin, xmax, ymin, ymax float64) {
+// aucRange is the range of every AUC the chain's panel draws (all its
+// pieces share the axis).
+func (w *chainWaterfall) aucRange() (xmin, xmax float64) {
 	xmin, xmax = math.Inf(1), math.Inf(-1)
 	for _, cs := range w.cs {
 		xmin, xmax = math.Min(xmin, math.Min(cs.StartAUC, cs.EndAUC)), math.Max(xmax, math.Max(cs.StartAUC, cs.EndAUC))
@@ -114,46 +147,88 @@ func (w chainWaterfall) DataRange() (xmin, xmax, ymin, ymax float64) {
 			xmax = math.Max(xmax, math.Max(st.AUCInner, st.AUCOuter))
 		}
 	}
-	return xmin, xmax, w.y(w.rows()-1, len(w.cs)-1) - 1, w.y(0, 0) + 1
+	return xmin, xmax
 }
 
-// rowLabels names the rows, top to bottom.
-func (w chainWaterfall) rowLabels(first, last string) []string {
-	ls := []string{first}
-	for _, st := range w.steps {
-		if st.Kind == StepRing {
-			ls = append(ls, "ring to "+st.Outer)
-		} else {
-			ls = append(ls, "test records of "+st.Outer)
-		}
+// DataRange implements plot.DataRanger.
+func (s ringSeg) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax = s.w.aucRange()
+	return xmin, xmax, 0, float64(s.rows())
+}
+
+// rowLabel names row i of the chain.
+func (w *chainWaterfall) rowLabel(i int) string {
+	switch {
+	case i == 0:
+		return w.cs[0].Members[0]
+	case i == w.rows()-1:
+		return w.cs[0].Members[len(w.cs[0].Members)-1]
+	case w.steps[i-1].Kind == StepRing:
+		return "ring to " + w.steps[i-1].Outer
+	default:
+		return "test records of " + w.steps[i-1].Outer
 	}
-	return append(ls, last)
 }
 
-// plot returns the panel: the waterfall with its rows named on the y axis
-// and an AUC axis from the data, within 0 to 1.
-func (w chainWaterfall) plot(models []string, titleW vg.Length) *plot.Plot {
-	title := "nested chain " + w.cs[0].Chain
-	if len(w.cs) < len(models) {
-		title += ", model"
-		for q, c := range w.cs {
+// rowKind is the right-hand column's word for what row i's values are.
+func (w *chainWaterfall) rowKind(i int) string {
+	switch {
+	case i == 0 || i == w.rows()-1:
+		return "AUC"
+	case w.steps[i-1].Kind == StepRing:
+		return "ring AUC"
+	default:
+		return "no ring"
+	}
+}
+
+// rowValue is model k's value in row i: the AUC on the first or last
+// extent, the ring's own AUC ("–" when undefined), or "" for a step of
+// test records only.
+func (w *chainWaterfall) rowValue(i, k int) string {
+	cs := w.cs[k]
+	switch {
+	case i == 0:
+		return f3(cs.StartAUC)
+	case i == w.rows()-1:
+		return f3(cs.EndAUC)
+	}
+	st := cs.Steps[i-1]
+	if st.Kind != StepRing {
+		return ""
+	}
+	if !st.AUCRingDefined {
+		return "–"
+	}
+	return f3(st.AUCRing)
+}
+
+// title is the panel's title.
+func (s ringSeg) title(models int) string {
+	t := "nested chain " + s.w.cs[0].Chain
+	if len(s.w.cs) < models || s.w.models[0] < 0 {
+		t += ", model"
+		for q, c := range s.w.cs {
 			if q > 0 {
-				title += ","
+				t += ","
 			}
-			title += " " + c.Model
+			t += " " + c.Model
 		}
 	}
-	p := newPlot(title, titleW)
-	p.Add(w)
-	names := w.rowLabels(w.cs[0].Members[0], w.cs[0].Members[len(w.cs[0].Members)-1])
-	var ts []plot.Tick
-	for q, n := range names {
-		ts = append(ts, plot.Tick{Value: w.rowCentre(q), Label: n})
+	if s.from > 0 {
+		t += " (continued)"
 	}
-	p.Y.Tick.Marker = plot.ConstantTicks(ts)
-	p.Y.Tick.Length = 0
-	p.Y.LineStyle.Width = 0
-	xmin, xmax, ymin, ymax := w.DataRange()
+	return t
+}
+
+// plot returns the piece's panel: the waterfall and an AUC axis from the
+// data, within 0 to 1. The rows' names and values are drawn beside it
+// (ringTexts), so the y axis is hidden.
+func (s ringSeg) plot(models int, titleW vg.Length) *plot.Plot {
+	p := newPlot(s.title(models), titleW)
+	p.Add(s)
+	p.HideY()
+	xmin, xmax := s.w.aucRange()
 	if xmax-xmin < 0.02 {
 		mid := (xmin + xmax) / 2
 		xmin, xmax = mid-0.01, mid+0.01
@@ -164,13 +239,200 @@ func (w chainWaterfall) plot(models []string, titleW vg.Length) *plot.Plot {
 	p.X.Max = math.Min(1, math.Ceil((xmax+pad)/step-1e-9)*step)
 	p.X.Tick.Marker = niceTicks{N: 5}
 	p.X.Label.Text = "AUC"
-	p.Y.Min, p.Y.Max = ymin, ymax
+	p.Y.Min, p.Y.Max = 0, float64(s.rows())
 	return p
+}
+
+// ringChrome is a piece's height besides its rows: the gap above it, its
+// title and its AUC axis.
+func ringChrome(s ringSeg, models int, titleW vg.Length) vg.Length {
+	p := s.plot(models, titleW)
+	const h = 1000
+	da := p.DataCanvas(draw.Canvas{Rectangle: vg.Rectangle{Max: vg.Point{X: titleW, Y: h}}})
+	return h - (da.Max.Y - da.Min.Y) + ringPanelGap
+}
+
+// ringPage is one page (figure) of the waterfalls: the pieces it draws,
+// top to bottom, and their total height.
+type ringPage struct {
+	segs []ringSeg
+	h    vg.Length
+}
+
+// layoutRingPages places the panels' rows on pages whose panels may take
+// at most avail: each row ringRowPitch tall, whole panels where they fit;
+// a panel that does not fit in what is left of a page starts a new page
+// when it would fit on an empty one, and otherwise fills the page (with at
+// least ringMinPieceRows rows) and continues on the next. The first null's
+// panel (models index -1; waterfallPanels puts them last) starts a new
+// page, so that ring_steps holds the models' chains. chrome gives a
+// piece's height besides its rows.
+func layoutRingPages(panels []*chainWaterfall, avail vg.Length, chrome func(ringSeg) vg.Length) []ringPage {
+	var pages []ringPage
+	var cur ringPage
+	for q, w := range panels {
+		pitch := ringRowPitch(len(w.cs))
+		if q > 0 && w.models[0] < 0 && panels[q-1].models[0] >= 0 && len(cur.segs) > 0 {
+			// The nulls' chains start a page of their own.
+			pages = append(pages, cur)
+			cur = ringPage{}
+		}
+		for from := 0; from < w.rows(); {
+			seg := ringSeg{w: w, from: from, to: w.rows()}
+			ch := chrome(seg)
+			left := seg.rows()
+			fit := int((avail - cur.h - ch) / pitch)
+			if fit >= left {
+				cur.segs = append(cur.segs, seg)
+				cur.h += ch + vg.Length(left)*pitch
+				break
+			}
+			fresh := int((avail - ch) / pitch)
+			if len(cur.segs) > 0 && (fit < min(ringMinPieceRows, left) || fresh >= left) {
+				pages = append(pages, cur)
+				cur = ringPage{}
+				continue
+			}
+			seg.to = from + max(fit, 1)
+			cur.segs = append(cur.segs, seg)
+			cur.h += ch + vg.Length(seg.rows())*pitch
+			pages = append(pages, cur)
+			cur = ringPage{}
+			from = seg.to
+		}
+	}
+	if len(cur.segs) > 0 {
+		pages = append(pages, cur)
+	}
+	return pages
+}
+
+// ringCols is the horizontal layout of the pages: room for the row names
+// left of the data, and right of it a column for the kind of value
+// ("AUC", "ring AUC", "no ring") and one column per model.
+type ringCols struct {
+	labelW      vg.Length // widest row name, at most ringMaxLabelW
+	kindW, colW vg.Length
+	models      int // most models in one panel
+}
+
+// Horizontal gaps of the right-hand columns, in points.
+const (
+	ringValueGap = 8 * vg.Length(1) // from the data area to the first column
+	ringColGap   = 6 * vg.Length(1) // between columns
+)
+
+// newRingCols sizes the columns for the pieces of p.
+func newRingCols(p ringPage) ringCols {
+	var rc ringCols
+	for _, s := range []string{"AUC", "ring AUC", "no ring"} {
+		rc.kindW = max(rc.kindW, textWidth(s, minFontPt))
+	}
+	rc.colW = max(textWidth("0.000", minFontPt), 2*vg.Points(2.4)) + ringColGap
+	for _, s := range p.segs {
+		rc.models = max(rc.models, len(s.w.cs))
+		for i := s.from; i < s.to; i++ {
+			rc.labelW = max(rc.labelW, textWidth(s.w.rowLabel(i), minFontPt))
+		}
+	}
+	rc.labelW = min(rc.labelW, ringMaxLabelW)
+	return rc
+}
+
+// ringMaxLabelW is the most room the row names take (our choice, 30% of
+// the page's width): a longer name is shortened by fitLabel, so that the
+// data keep room however long the extents' IDs.
+const ringMaxLabelW = 0.3 * twoColumns
+
+// fitLabel returns s, or s cut to its start and end joined by "…" when it
+// is wider than w at the label size.
+func fitLabel(s string, w vg.Length) string {
+	if textWidth(s, minFontPt) <= w {
+		return s
+	}
+	r := []rune(s)
+	for cut := 1; cut < len(r); cut++ {
+		head := (len(r) - cut + 1) / 2
+		t := string(r[:head]) + "…" + string(r[head+cut:])
+		if textWidth(t, minFontPt) <= w {
+			return t
+		}
+	}
+	return "…"
+}
+
+// left is the room left of the data areas; right the room right of them.
+func (rc ringCols) left() vg.Length { return rc.labelW + vg.Points(8) }
+func (rc ringCols) right() vg.Length {
+	return ringValueGap + rc.kindW + ringColGap + vg.Length(rc.models)*rc.colW
+}
+
+// colX is the left edge of model k's value column for a data area ending
+// at x.
+func (rc ringCols) colX(x vg.Length, k int) vg.Length {
+	return x + ringValueGap + rc.kindW + ringColGap + vg.Length(k)*rc.colW
+}
+
+// ringText is one text beside a panel, vertically centred on y; right
+// aligned at x when right, else starting at x.
+type ringText struct {
+	s     string
+	x, y  vg.Length
+	right bool
+}
+
+// box is the text's extent at the label size.
+func (t ringText) box() vg.Rectangle {
+	w, h := textWidth(t.s, minFontPt), ringLabelH()
+	x0 := t.x
+	if t.right {
+		x0 -= w
+	}
+	return vg.Rectangle{Min: vg.Point{X: x0, Y: t.y - h/2}, Max: vg.Point{X: x0 + w, Y: t.y + h/2}}
+}
+
+// ringTexts returns the texts of piece s whose rows fill data area da:
+// each row's name left of it, and right of it the kind of value and one
+// value per model (one text per column, so never two on one line), each
+// at its row's centre.
+func ringTexts(s ringSeg, da vg.Rectangle, rc ringCols) []ringText {
+	pitch := (da.Max.Y - da.Min.Y) / vg.Length(s.rows())
+	var ts []ringText
+	for i := s.from; i < s.to; i++ {
+		y := da.Max.Y - (vg.Length(i-s.from)+0.5)*pitch
+		ts = append(ts, ringText{s: fitLabel(s.w.rowLabel(i), rc.labelW), x: da.Min.X - vg.Points(4), y: y, right: true},
+			ringText{s: s.w.rowKind(i), x: da.Max.X + ringValueGap, y: y})
+		for k := range s.w.cs {
+			if v := s.w.rowValue(i, k); v != "" {
+				ts = append(ts, ringText{s: v, x: rc.colX(da.Max.X, k), y: y})
+			}
+		}
+	}
+	return ts
+}
+
+// ringHeader is where model k's marker heads its value column: centred
+// over the column's numbers, just above the data area.
+func ringHeader(da vg.Rectangle, rc ringCols, k int) vg.Point {
+	return vg.Point{X: rc.colX(da.Max.X, k) + (rc.colW-ringColGap)/2, Y: da.Max.Y + vg.Points(5)}
+}
+
+// alignData moves the sides of c so that p's data area runs from x0 to
+// x1: the plot pads its data area for the tick labels at its ends, which
+// differ from panel to panel. Two rounds, as the padding depends a little
+// on the width.
+func alignData(p *plot.Plot, c *draw.Canvas, x0, x1 vg.Length) {
+	c.Min.X, c.Max.X = x0, x1
+	for range 2 {
+		da := p.DataCanvas(*c)
+		c.Min.X += x0 - da.Min.X
+		c.Max.X += x1 - da.Max.X
+	}
 }
 
 // ringsNote says how to read the waterfall, in particular a negative step.
 const ringsNote = "How to read a step: each arrow moves the AUC from one extent of the chain to the next larger one. " +
-	"The new ring has its own AUC (in the column on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
+	"The new ring has its own AUC (in the columns on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
 	"An arrow pointing left (a negative step) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records. " +
 	"The steps add up to the change from the first to the last extent, so when steps go both ways one step can exceed the whole change (a share above 100%) while another is negative."
 
@@ -189,104 +451,242 @@ func sameSteps(a, b []ChainStep) bool {
 
 // waterfallPanels groups the chain summaries into panels: one per chain,
 // with every model whose steps match the chain's first model (a model
-// with other steps gets its own panel).
-func waterfallPanels(s *Sensitivity) []chainWaterfall {
+// with other steps, and a null, gets its own panel). The models' panels
+// come first, in chain order, then the nulls'.
+func waterfallPanels(s *Sensitivity) []*chainWaterfall {
 	modelIndex := map[string]int{}
 	for i, m := range s.ModelNames {
 		modelIndex[m] = i
 	}
-	var ws []chainWaterfall
+	var ws, nullWs []*chainWaterfall
 	for i := range s.Chains {
 		c := &s.Chains[i]
 		if len(c.Members) < 2 {
 			continue
 		}
+		mi, isModel := modelIndex[c.Model]
+		if !isModel {
+			mi = -1
+		}
+		list := &ws
+		if !isModel {
+			list = &nullWs
+		}
 		placed := false
-		for q := range ws {
-			if ws[q].cs[0].Chain == c.Chain && sameSteps(ws[q].steps, c.Steps) {
-				ws[q].cs = append(ws[q].cs, c)
-				ws[q].models = append(ws[q].models, modelIndex[c.Model])
+		for _, w := range *list {
+			if isModel && w.cs[0].Chain == c.Chain && sameSteps(w.steps, c.Steps) {
+				w.cs = append(w.cs, c)
+				w.models = append(w.models, mi)
 				placed = true
 				break
 			}
 		}
 		if !placed {
-			ws = append(ws, chainWaterfall{steps: c.Steps, cs: []*ChainSummary{c}, models: []int{modelIndex[c.Model]}})
+			*list = append(*list, &chainWaterfall{steps: c.Steps, cs: []*ChainSummary{c}, models: []int{mi}})
 		}
 	}
-	return ws
+	return append(ws, nullWs...)
 }
 
-// ringsFigure draws one waterfall panel per nested chain.
-func ringsFigure(r *Results) (figure, bool) {
+// wholePanels returns every panel as one piece.
+func wholePanels(panels []*chainWaterfall) []ringSeg {
+	segs := make([]ringSeg, len(panels))
+	for i, w := range panels {
+		segs[i] = ringSeg{w: w, from: 0, to: w.rows()}
+	}
+	return segs
+}
+
+// ringLayout is the arrangement of the ring_steps pages: the pieces on
+// each page, the columns every page shares, the panels' title width, the
+// number of models (a panel with fewer names its models) and the heights
+// of the legend and note at the foot of a page (the note on the first
+// page only).
+type ringLayout struct {
+	pages          []ringPage
+	rc             ringCols
+	titleW         vg.Length
+	models         int
+	legendH, noteH vg.Length
+}
+
+// newRingLayout places panels on pages of width twoColumns that keep
+// legendH and noteH for the legend and note.
+func newRingLayout(panels []*chainWaterfall, models int, legendH, noteH vg.Length) ringLayout {
+	l := ringLayout{models: models, legendH: legendH, noteH: noteH}
+	// One set of columns for every page, from every panel's rows, so that
+	// the data areas line up from page to page and a title wrapped to
+	// their width never reaches the value columns.
+	l.rc = newRingCols(ringPage{segs: wholePanels(panels)})
+	l.titleW = max(twoColumns-l.rc.left()-l.rc.right(), vg.Points(60))
+	// Every page keeps room for the note, so that the first page's room
+	// does not depend on how many pages follow.
+	avail := maxHeight - legendH - noteH - vg.Points(3)
+	l.pages = layoutRingPages(panels, avail, func(sg ringSeg) vg.Length { return ringChrome(sg, models, l.titleW) })
+	return l
+}
+
+// height is page pi's height.
+func (l ringLayout) height(pi int) vg.Length {
+	h := l.legendH + l.pages[pi].h + vg.Points(3)
+	if pi == 0 {
+		h += l.noteH
+	}
+	return min(maxHeight, h)
+}
+
+// ringPlaced is one piece drawn on a page: its panel, the canvas it is
+// drawn in and its data area.
+type ringPlaced struct {
+	seg ringSeg
+	p   *plot.Plot
+	c   draw.Canvas
+	da  vg.Rectangle
+}
+
+// place lays out page pi's pieces in rest (the page above its legend and
+// note), top to bottom, with every data area from the same left to the
+// same right edge.
+func (l ringLayout) place(pi int, rest draw.Canvas) []ringPlaced {
+	var out []ringPlaced
+	y := rest.Max.Y - vg.Points(3) // glyphs of the top title reach above its box
+	for _, sg := range l.pages[pi].segs {
+		p := sg.plot(l.models, l.titleW)
+		rows := vg.Length(sg.rows()) * ringRowPitch(len(sg.w.cs))
+		c := rest
+		c.Max.Y = y
+		c.Min.Y = y - ringChrome(sg, l.models, l.titleW) - rows
+		y = c.Min.Y
+		c.Max.Y -= ringPanelGap
+		alignData(p, &c, rest.Min.X+l.rc.left(), rest.Max.X-l.rc.right())
+		out = append(out, ringPlaced{seg: sg, p: p, c: c, da: p.DataCanvas(c).Rectangle})
+	}
+	return out
+}
+
+// ringPageName names page i (from 0) of the ring_steps figure.
+func ringPageName(i int) string {
+	if i == 0 {
+		return "ring_steps"
+	}
+	return fmt.Sprintf("ring_steps_%d", i+1)
+}
+
+// ringsFigures draws the waterfall panels on as many pages as their rows
+// need at the row pitch of ringRowPitch: ring_steps, then ring_steps_2,
+// ring_steps_3, ... (the models' chains first, then the nulls'). A long
+// chain continues on the next page, its title saying from which row.
+func ringsFigures(r *Results) []figure {
 	s := r.Sensitivity
 	panels := waterfallPanels(s)
 	if len(panels) == 0 {
-		return figure{}, false
+		return nil
 	}
-	f := figure{Name: "ring_steps", Title: "AUC step by step along each nested chain", W: twoColumns, Note: ringsNote}
+	nullIndex := map[string]int{}
+	for j, nm := range nulls(r) {
+		nullIndex[nm.Name] = j
+	}
+	usedModel := make([]bool, len(s.ModelNames))
+	var usedNulls []string
+	seenNull := map[string]bool{}
+	for _, w := range panels {
+		w.marks = make([]draw.GlyphStyle, len(w.cs))
+		for k, mi := range w.models {
+			if mi >= 0 {
+				w.marks[k] = markerStyle(mi)
+				usedModel[mi] = true
+				continue
+			}
+			_, w.marks[k] = nullLineStyle(nullIndex[w.cs[k].Model])
+			if !seenNull[w.cs[k].Model] {
+				seenNull[w.cs[k].Model] = true
+				usedNulls = append(usedNulls, w.cs[k].Model)
+			}
+		}
+	}
 	var items []legendItem
 	for i, m := range s.ModelNames {
-		ls := lineStyle(modelColor(i), 2.2, nil)
-		items = append(items, legendItem{"model " + m, glyphThumb{gs: draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)}, line: &ls}})
+		if usedModel[i] {
+			ls := lineStyle(modelColor(i), 2.2, nil)
+			items = append(items, legendItem{"model " + m, glyphThumb{gs: markerStyle(i), line: &ls}})
+		}
+	}
+	for _, nm := range usedNulls {
+		ls, gs := nullLineStyle(nullIndex[nm])
+		ls.Width, ls.Dashes = vg.Points(2.2), nil
+		items = append(items, legendItem{modelLabel(r, nm), glyphThumb{gs: gs, line: &ls}})
 	}
 	items = append(items,
 		legendItem{"ring of new background", lineThumb{lineStyle(ink, 2.2, nil)}},
 		legendItem{"test records that first fall inside", lineThumb{lineStyle(ink, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})}})
-	legend := legendRows(items, f.W)
+	const w = twoColumns
+	legend := legendRows(items, w)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
-	note := wrapText(f.Note, minFontPt, f.W-vg.Points(8))
+	note := wrapText(ringsNote, minFontPt, w-vg.Points(8))
 	noteH := textStyle(minFontPt).Height(note) + vg.Points(6)
-	labelW := vg.Length(0)
-	for _, s := range []string{"ring AUC 0.000", "new test records", "AUC 0.000"} {
-		labelW = max(labelW, textWidth(s, minFontPt))
-	}
-	labelW += vg.Points(18)
-	// Panel heights follow their number of lines: 9 pt per model line,
-	// plus title and axis.
-	heights := make([]vg.Length, len(panels))
-	total := vg.Length(0)
-	for i, w := range panels {
-		heights[i] = vg.Length(w.rows()*(len(w.cs)+1))*vg.Points(8.5) + vg.Points(48)
-		total += heights[i]
-	}
-	f.H = min(maxHeight, legendH+noteH+total+vg.Points(3))
-	scale := (f.H - legendH - noteH - vg.Points(3)) / total
-	f.Caption = "Waterfall of the AUC along each nested chain, one panel per chain, one line per model: the marker at the top is the AUC on the chain's smallest extent, " +
-		"each arrow one step to the next larger extent (solid: a ring of new background; dashed: test records that first fall inside), the marker at the bottom the AUC on the largest extent. " +
+	lay := newRingLayout(panels, len(s.ModelNames), legendH, noteH)
+	pages := lay.pages
+	caption := "Waterfall of the AUC along each nested chain, one panel per chain, one line per model in each row: the marker in the top row is the AUC on the chain's smallest extent, " +
+		"each arrow one step to the next larger extent (solid: a ring of new background; dashed: test records that first fall inside), the marker in the bottom row the AUC on the largest extent. " +
+		"Right of each panel, one column per model, headed by its marker: the AUC on the first and last extent and each ring's own AUC (– when undefined; a step of test records adds no ring). " +
 		"All AUCs use the test records inside each extent; there is no bar of uncertainty."
-	f.draw = func(dc draw.Canvas) error {
-		noteC, rest := splitBottom(dc, noteH)
-		sty := textStyle(minFontPt)
-		sty.YAlign = draw.YTop
-		noteC.FillText(sty, vg.Point{X: noteC.Min.X + vg.Points(4), Y: noteC.Max.Y - vg.Points(2)}, note)
-		legC, rest := splitBottom(rest, legendH)
-		drawLegendRows(legC, legend)
-		plots := make([]*plot.Plot, len(panels))
-		canv := make([]draw.Canvas, len(panels))
-		y := rest.Max.Y - vg.Points(3) // glyphs of the top title reach above its box
-		left := vg.Length(0)
-		for i, w := range panels {
-			p := w.plot(s.ModelNames, f.W-labelW)
-			c := rest
-			c.Max.Y = y
-			c.Min.Y = y - heights[i]*scale
-			c.Max.X -= labelW
-			c.Min.X += vg.Points(2)
-			y = c.Min.Y
-			c.Min.Y += vg.Points(6) // a gap above the next panel's title
-			da := p.DataCanvas(c)
-			left = max(left, da.Min.X-c.Min.X)
-			plots[i], canv[i] = p, c
+	var fs []figure
+	for pi, pg := range pages {
+		f := figure{Name: ringPageName(pi), Title: "AUC step by step along each nested chain", W: w}
+		if len(pages) > 1 {
+			f.Title += fmt.Sprintf(" (part %d of %d)", pi+1, len(pages))
 		}
-		// Align the data areas' left edges.
-		for i, p := range plots {
-			c := canv[i]
-			da := p.DataCanvas(c)
-			c.Min.X += left - (da.Min.X - c.Min.X)
-			p.Draw(c)
+		var chains []string
+		for _, sg := range pg.segs {
+			chains = append(chains, sg.title(len(s.ModelNames)))
 		}
-		return nil
+		if pi == 0 {
+			f.Note = ringsNote
+			f.Caption = caption
+			if len(pages) > 1 {
+				var rest []string
+				for q := 1; q < len(pages); q++ {
+					rest = append(rest, ringPageName(q))
+				}
+				f.Caption += fmt.Sprintf(" The rows, at least %.2g times the label height apart, do not fit one page: the chains continue in %s.", ringMinPitch, strings.Join(rest, ", "))
+			}
+		} else {
+			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))
+		}
+		f.H = lay.height(pi)
+		f.draw = func(dc draw.Canvas) error {
+			rest := dc
+			if pi == 0 {
+				var noteC draw.Canvas
+				noteC, rest = splitBottom(dc, noteH)
+				sty := textStyle(minFontPt)
+				sty.YAlign = draw.YTop
+				noteC.FillText(sty, vg.Point{X: noteC.Min.X + vg.Points(4), Y: noteC.Max.Y - vg.Points(2)}, note)
+			}
+			legC, rest := splitBottom(rest, legendH)
+			drawLegendRows(legC, legend)
+			sty := textStyle(minFontPt)
+			sty.YAlign = draw.YCenter
+			right := sty
+			right.XAlign = draw.XRight
+			for _, pl := range lay.place(pi, rest) {
+				pl.p.Draw(pl.c)
+				for _, t := range ringTexts(pl.seg, pl.da, lay.rc) {
+					if t.right {
+						dc.FillText(right, vg.Point{X: t.x, Y: t.y}, t.s)
+					} else {
+						dc.FillText(sty, vg.Point{X: t.x, Y: t.y}, t.s)
+					}
+				}
+				for k := range pl.seg.w.cs {
+					gs := pl.seg.w.marks[k]
+					gs.Radius = vg.Points(2.4)
+					dc.DrawGlyph(gs, ringHeader(pl.da, lay.rc, k))
+				}
+			}
+			return nil
+		}
+		fs = append(fs, f)
 	}
-	return f, true
+	return fs
 }

@@ -46,9 +46,7 @@ func figures(r *Results) []figure {
 	if f, ok := mapFigure(r); ok {
 		fs = append(fs, f)
 	}
-	if f, ok := ringsFigure(r); ok {
-		fs = append(fs, f)
-	}
+	fs = append(fs, ringsFigures(r)...)
 	fs = append(fs, nullGapFigures(r)...)
 	return fs
 }

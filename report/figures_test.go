@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -534,8 +535,11 @@ func TestWaterfallPanels(t *testing.T) {
 			if !sameSteps(w.steps, c.Steps) || c.Chain != w.cs[0].Chain {
 				t.Errorf("panel of chain %s holds %s/%s with other steps", w.cs[0].Chain, c.Chain, c.Model)
 			}
-			if s.ModelNames[w.models[k]] != c.Model {
-				t.Errorf("model index %d is not %s", w.models[k], c.Model)
+			if mi := w.models[k]; (mi < 0 && slices.Contains(s.ModelNames, c.Model)) || (mi >= 0 && s.ModelNames[mi] != c.Model) {
+				t.Errorf("model index %d is not %s", mi, c.Model)
+			}
+			if w.models[k] < 0 && len(w.cs) > 1 {
+				t.Errorf("null %s shares the panel of chain %s", c.Model, c.Chain)
 			}
 		}
 	}

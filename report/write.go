@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strconv"
+	"strings"
 
 	"areasweep/report/outfile"
 )
@@ -33,17 +35,49 @@ func Write(dir string, r *Results) error {
 	go func() {
 		methodsErr <- recovered("methods.md", func() error { return writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods)) })
 	}()
-	err := writeFigures(filepath.Join(dir, "figures"), figures(r), func(rendered []renderedFigure) error {
+	figs := figures(r)
+	err := writeFigures(filepath.Join(dir, "figures"), figs, func(rendered []renderedFigure) error {
 		page, err := htmlPage(r, rendered, methods)
 		if err != nil {
 			return err
 		}
 		return writeAtomic(filepath.Join(dir, "report.html"), page)
 	})
+	if err == nil {
+		err = removeStalePages(filepath.Join(dir, "figures"), figs)
+	}
 	if merr := <-methodsErr; err == nil {
 		err = merr
 	}
 	return err
+}
+
+// removeStalePages removes the further pages of ring_steps
+// (ring_steps_N.svg, .pdf, .png) that figs does not hold: left from an
+// earlier report of the same results folder with more pages, they would
+// show steps that are no longer there.
+func removeStalePages(figDir string, figs []figure) error {
+	keep := map[string]bool{}
+	for _, f := range figs {
+		keep[f.Name] = true
+	}
+	for _, format := range figureFormats {
+		paths, err := filepath.Glob(filepath.Join(figDir, "ring_steps_*."+format))
+		if err != nil {
+			return fmt.Errorf("report: %w", err)
+		}
+		for _, p := range paths {
+			name := strings.TrimSuffix(filepath.Base(p), "."+format)
+			n, err := strconv.Atoi(strings.TrimPrefix(name, "ring_steps_"))
+			if err != nil || n < 2 || ringPageName(n-1) != name || keep[name] {
+				continue // not one of our pages, or a page of this report
+			}
+			if err := os.Remove(p); err != nil && !os.IsNotExist(err) {
+				return fmt.Errorf("report: remove stale figure page: %w", err)
+			}
+		}
+	}
+	return nil
 }
 
 // writeAtomic writes data to path whole or not at all (package outfile),
