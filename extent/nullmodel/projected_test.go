@@ -218,18 +218,7 @@ func BenchmarkFieldBracketProjected(b *testing.B) {
 	exact := 0
 	c0 := cpuNanos(b)
 	for b.Loop() {
-		exact = 0
-		for y0 := 0; y0 < h; y0 += 240 {
-			for x0 := 0; x0 < w; x0 += 240 {
-				bw, bh := min(240, w-x0), min(240, h-y0)
-				f.Bracket(x0, y0, bw, bh, nil, layout, lo, hi)
-				for i := range bw * bh {
-					if lo[i] == hi[i] {
-						exact++
-					}
-				}
-			}
-		}
+		exact = bracketBlocks(f, w, h, layout, lo, hi)
 	}
 	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
 	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
