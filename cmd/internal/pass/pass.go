@@ -80,7 +80,11 @@ func openGDALSource(path string) (Source, error) {
 
 func (s *gdalSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	if err := s.band.Read(x0, y0, buf[:w*h], w, h); err != nil {
-		return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, x0, y0, gdalmsg.Cause(err.Error()))
+		what := "block"
+		if w == 1 && h == 1 {
+			what = "cell" // a point read by Sample
+		}
+		return fmt.Errorf("pass: %s: the %s at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, what, x0, y0, gdalmsg.Cause(err.Error()))
 	}
 	return nil
 }
