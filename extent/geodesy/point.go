@@ -165,8 +165,10 @@ func (n *Near) Len() int { return len(n.slots) }
 
 // Bounds returns bounds lo <= s <= hi on the geodesic distance s from pt
 // to its nearest site, computed over the listed sites only and valid
-// provided that site is in the list (see NearSites). hi is NearestBounds'
-// upper bound from the listed site of smallest chord. lo is the smallest
+// provided that site is in the list (see NearSites). hi is the smaller of
+// NearestBounds' upper bound from the listed site of smallest chord and
+// sectionUpper of the straight distance to that site (see TightBoundsAt).
+// lo is the smallest
 // over the listed sites i of the larger of bounds (1) and (2) of Index for
 // site i,
 //
@@ -191,7 +193,9 @@ func (n *Near) Bounds(pt *Point) (lo, hi float64, ok bool) {
 		}
 	}
 	lo, hi = ix.chordBounds(&st, pt.k)
-	lo = math.Max(lo, ecefBound(&ix.ecef[st.bestAt], &pt.p))
+	chord := math.Sqrt(d2(&ix.ecef[st.bestAt], &pt.p))
+	lo = math.Max(lo, math.Max(0, chord*(1-marginRel)-marginAbs)) // ecefBound
+	hi = math.Min(hi, sectionUpper(chord))
 	// Another site can lower lo only if its bound (1) lies below lo: its
 	// squared chord lies below that of distance lo under bound (1), taken
 	// a little large so that rounding never skips one.
