@@ -21,22 +21,26 @@ const walkSide = 8
 // from several goroutines (never twice for a row): near[j] holds the runs
 // of the row's cells whose geodesic distance from the cell centre to the
 // nearest site of ix is at most cuts[j]. cuts are metres, ascending,
-// unique and all <= maxD; the slices in near are the callee's to keep.
+// unique and all <= maxD (at most MaxMembers of them, so that a class
+// fits 16 bits); the slices in near are the callee's to keep.
 //
 // Only the class of each cell matters: which of the cut distances the
 // distance lies below. Each worker holds the distances of one band of
-// tileSide rows at a time, never the whole grid. The distance
+// tileSide rows at a time (as classes, 2 bytes a cell), never the whole
+// grid. The distance
 // function is 1-Lipschitz, which saves most queries:
 //
 //   - a tile of tileSide x tileSide cells gets one query at its centre cell,
 //     D, and rho, the largest distance from that centre to a corner cell
 //     (times a small safety factor); when every cut is farther than rho
 //     from D, or D - rho > maxD, every cell of the tile is in D's class and
-//     receives D; otherwise the tile is split in four and each quarter tried
-//     the same way, down to tiles of walkSide cells a side. D comes from the index's chord bounds [lo, hi] when they
-//     settle the tile; the exact distance is measured only when it could
-//     (some value of [lo, hi] would settle it), which is rare: the bounds
-//     are within 0.17% of D, far narrower than rho;
+//     receives D's class; otherwise the tile is split in four and each
+//     quarter tried the same way, down to tiles of walkSide cells a side.
+//     D comes from the index's bounds [lo, hi] (geodesy's TightBoundsAt:
+//     a few metres wide at hundreds of kilometres) when they settle the
+//     tile; the exact distance is measured only when it could (some value
+//     of [lo, hi] would settle it), which is rare: the bounds are far
+//     narrower than rho;
 //   - a tile of walkSide cells or fewer a side that one query does not
 //     settle is walked cell by cell (walkTile): a cell takes the class of a
 //     neighbour already classified while the neighbour's room (its gap to
@@ -51,7 +55,6 @@ const walkSide = 8
 // chord-nearest site.
 func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
 	g := b.g
-	gap := func(lo, hi float64) float64 { return intervalGap(cuts, lo, hi) }
 	bands := make(chan int)
 	var wg sync.WaitGroup
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
@@ -65,14 +68,13 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				lons[k] = make([]float64, g.Width)
 				lats[k] = make([]float64, g.Width)
 			}
-			dist := make([]float64, tileSide*g.Width)
+			fl := &field{cuts: cuts, maxD: maxD, w: g.Width, cls: make([]uint16, tileSide*g.Width)}
 			open := make([]int32, len(cuts))
 			rhos := map[[3]int]float64{}
 			pts := &bandPoints{lons: lons, lats: lats, rows: make([]geodesy.Parallel, tileSide), hint: -1, reach: reach}
 			for r0 := range bands {
 				clear(rhos)
-				off := r0 * g.Width
-				set := func(i int, d float64) { dist[i-off] = d }
+				fl.band = r0
 				r1 := min(r0+tileSide, g.Height)
 				for r := r0; r < r1; r++ {
 					k := r - r0
@@ -84,7 +86,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 					hi, rho := math.Inf(1), 0.0
 					if t1-t0 > 2 && c1-c0 > 2 {
 						var ok bool
-						ok, hi, rho = b.wholeTile(ix, maxD, gap, set, pts, r0, t0, t1, c0, c1, rhos)
+						ok, hi, rho = b.wholeTile(ix, fl, pts, t0, t1, c0, c1, rhos)
 						if ok {
 							return
 						}
@@ -97,14 +99,14 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 							return
 						}
 					}
-					walkTile(ix, maxD, gap, set, pts, steps, r0, t0, t1, c0, c1, g.Width, hi, rho)
+					walkTile(ix, fl, pts, steps, t0, t1, c0, c1, hi, rho)
 				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width))
 				}
 				for r := r0; r < r1; r++ {
 					k := r - r0
-					rowDone(r, cutRuns(dist[k*g.Width:(k+1)*g.Width], cuts, open))
+					rowDone(r, cutRuns(fl.cls[k*g.Width:(k+1)*g.Width], len(cuts), open))
 				}
 			}
 		}()
@@ -116,20 +118,16 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 	wg.Wait()
 }
 
-// cutRuns returns, for each cut j (ascending), the runs of the cells of a
-// row whose distance is at most cuts[j]. Cut runs nest, so one scan
-// tracking each cell's class (the first cut at or above its distance)
-// opens and closes them; open is scratch of len(cuts).
-func cutRuns(dist []float64, cuts []float64, open []int32) []rowRuns {
-	m := len(cuts)
+// cutRuns returns, for each of the m cuts (ascending), the runs of the
+// cells of a row whose distance is at most that cut, from each cell's
+// class (the first cut at or above its distance; m beyond every cut). Cut
+// runs nest, so one scan tracking the class opens and closes them; open
+// is scratch of len m.
+func cutRuns(classes []uint16, m int, open []int32) []rowRuns {
 	near := make([]rowRuns, m)
-	prev, lastD := m, math.NaN()
-	for c, d := range dist {
-		if d == lastD {
-			continue
-		}
-		lastD = d
-		cls := sort.SearchFloat64s(cuts, d)
+	prev := m
+	for c, k := range classes {
+		cls := int(k)
 		if cls == prev {
 			continue
 		}
@@ -145,39 +143,68 @@ func cutRuns(dist []float64, cuts []float64, open []int32) []rowRuns {
 		prev = cls
 	}
 	for j := prev; j < m; j++ {
-		near[j] = append(near[j], open[j], int32(len(dist)))
+		near[j] = append(near[j], open[j], int32(len(classes)))
 	}
 	return near
 }
 
-// intervalGap is how far the interval [lo, hi] lies from the nearest cut:
-// min over cuts c of lo - c (c < lo) or c - hi (c >= hi), and 0 when a cut
-// lies in [lo, hi). For lo = hi = d it is min |d - c|. A distance within
-// the gap of the interval is in the same class as every point of it.
-func intervalGap(cuts []float64, lo, hi float64) float64 {
+// field is one worker's band of a distance field: the class of each cell
+// of the band's rows (see cutRuns), with the cuts.
+type field struct {
+	cuts []float64
+	maxD float64
+	w    int      // grid width
+	band int      // the band's first grid row
+	cls  []uint16 // band row k, column c at k*w + c
+}
+
+// gap is classGap for the field's cuts.
+func (f *field) gap(lo, hi float64) (room float64, cls int) {
+	return classGap(f.cuts, lo, hi)
+}
+
+// fill gives the class of d to the cells of grid rows [r0, r1), columns
+// [c0, c1).
+func (f *field) fill(r0, r1, c0, c1 int, cls int) {
+	k := uint16(cls)
+	for r := r0; r < r1; r++ {
+		row := f.cls[(r-f.band)*f.w:]
+		for c := c0; c < c1; c++ {
+			row[c] = k
+		}
+	}
+}
+
+// classGap returns how far the interval [lo, hi] lies from the nearest
+// cut: min over cuts c of lo - c (c < lo) or c - hi (c >= hi), and 0 when a
+// cut lies in [lo, hi). For lo = hi = d it is min |d - c|. A distance
+// within the gap of the interval is in the same class as every point of
+// it. cls is the index of the first cut at or above lo (len(cuts) when
+// none): the class of every value of [lo, hi] when the gap is positive.
+func classGap(cuts []float64, lo, hi float64) (gap float64, cls int) {
 	// cuts are ascending: the first at or above lo, and the one before it.
 	i := sort.SearchFloat64s(cuts, lo)
 	m := math.Inf(1)
 	if i < len(cuts) {
 		if cuts[i] < hi {
-			return 0
+			return 0, i
 		}
 		m = cuts[i] - hi
 	}
 	if i > 0 {
 		m = math.Min(m, lo-cuts[i-1])
 	}
-	return m
+	return m, i
 }
 
 // wholeTile classifies the tile of rows [r0,r1) and columns [c0,c1) with
 // one query when it can, and reports whether it did. pts holds the rows
-// of the band starting at row band. When it did not, hi bounds the centre
+// of the field's band. When it did not, hi bounds the centre
 // cell's distance from above and rho the distance from the centre cell to
 // any cell of the tile (hi is +Inf when either is unknown).
-func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	pts *bandPoints, band, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
+func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
 	g := b.g
+	band, maxD := fl.band, fl.maxD
 	lons, lats := pts.lons, pts.lats
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
 	clat, clon := lats[kc][cc], lons[kc][cc]
@@ -210,30 +237,29 @@ func (b *builder) wholeTile(ix *geodesy.Index, maxD float64, gap func(lo, hi flo
 	}
 	// Bounds from the chord stage settle most tiles without a geodesic;
 	// any value in [lo, hi] is then in the class of every cell.
-	d := math.Inf(1)
+	cls := len(fl.cuts)
 	pt := pts.at(kc, cc)
 	lo, hi := pts.bounds(ix, &pt, maxD+rho)
 	if !math.IsInf(hi, 1) && !(lo-rho > maxD) {
-		if room := gap(lo, hi); room > rho {
-			d = lo
+		if room, k := fl.gap(lo, hi); room > rho {
+			cls = k
 		} else if room+(hi-lo) <= rho && hi-rho <= maxD {
 			// The exact distance lies in [lo, hi], so its gap from the
 			// cuts is at most room + (hi - lo), and it is at most hi: it
 			// would not settle the tile either.
 			return false, math.Inf(1), 0
 		} else {
-			_, d = ix.NearestAt(&pt, maxD+rho)
-			if !(d-rho > maxD) && !(gap(d, d) > rho) {
+			_, d := ix.NearestAt(&pt, maxD+rho)
+			room, k := fl.gap(d, d)
+			if !(d-rho > maxD) && !(room > rho) {
 				return false, math.Inf(1), 0
+			}
+			if !(d-rho > maxD) {
+				cls = k
 			}
 		}
 	}
-	for r := r0; r < r1; r++ {
-		base := r * g.Width
-		for c := c0; c < c1; c++ {
-			set(base+c, d)
-		}
-	}
+	fl.fill(r0, r1, c0, c1, cls)
 	return true, hi, rho
 }
 
@@ -248,11 +274,11 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 	return 2 * geodesy.SemiMajor * math.Asin(math.Min(1, math.Sqrt(h)))
 }
 
-// walkTile classifies the cells of rows [t0,t1) and columns [c0,c1) of
-// the band starting at row band (cell (r, c) is r*Width+c), row after row,
-// querying only where needed. A query at cell y gives a value D in the
-// class of d(y) with a room g: every value within g of D is in that class
-// (g = gap(lo, hi) from the bounds, or gap(d, d) from the exact distance).
+// walkTile classifies the cells of grid rows [t0,t1) and columns [c0,c1)
+// of the field's band, row after row, querying only where needed. A query
+// at cell y gives the class of d(y) with a room g: every value within g
+// of d(y) is in that class (g = gap(lo, hi) from the bounds, or gap(d, d)
+// from the exact distance).
 // The distance is 1-Lipschitz, so a neighbour x at geodesic step s from y
 // is in D's class with room g - s while that stays positive; each cell
 // takes the largest room offered by its left, upper-left, upper and
@@ -263,9 +289,9 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // and to the right. tileHi and tileRho are wholeTile's for this tile, or
 // +Inf and 0 (see nearSites). Cells outside the reach box (pts.in) are
 // farther than maxD.
-func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64, set func(int, float64),
-	pts *bandPoints, st *bandSteps, band, t0, t1, c0, c1 int, w int, tileHi, tileRho float64) {
+func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, t0, t1, c0, c1 int, tileHi, tileRho float64) {
 	n := c1 - c0
+	band, maxD, m := fl.band, fl.maxD, len(fl.cuts)
 	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho)
 	prevD, prevRoom := st.prevD[:n], st.prevRoom[:n]
 	curD, curRoom := st.curD[:n], st.curRoom[:n]
@@ -278,16 +304,16 @@ func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64,
 		if up {
 			vs, ds = st.v[k-1], st.diag[k-1]
 		}
-		base := r * w
+		row := fl.cls[k*fl.w : (k+1)*fl.w]
 		for i := 0; i < n; i++ {
 			c := c0 + i
 			curRoom[i] = -1
 			if !pts.in(k, c) {
-				set(base+c, math.Inf(1))
+				row[c] = uint16(m)
 				continue
 			}
 			// The largest room a neighbour passes on.
-			room, d := 0.0, 0.0
+			room, d := 0.0, int32(0)
 			if i > 0 && curRoom[i-1] > 0 {
 				step := hs
 				if step < 0 {
@@ -325,20 +351,22 @@ func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64,
 					lo, hi = pts.bounds(ix, &pt, maxD)
 				}
 				if math.IsInf(hi, 1) {
-					set(base+c, hi)
+					row[c] = uint16(m)
 					continue
 				}
-				d, room = lo, gap(lo, hi)
+				var k int
+				room, k = fl.gap(lo, hi)
 				if !(room > 0) {
-					_, d = ix.NearestAt(&pt, maxD)
-					if math.IsInf(d, 1) {
-						set(base+c, d)
+					_, s := ix.NearestAt(&pt, maxD)
+					if math.IsInf(s, 1) {
+						row[c] = uint16(m)
 						continue
 					}
-					room = gap(d, d)
+					room, k = fl.gap(s, s)
 				}
+				d = int32(k)
 			}
-			set(base+c, d)
+			row[c] = uint16(d)
 			curD[i], curRoom[i] = d, room
 		}
 		prevD, curD = curD, prevD
@@ -351,10 +379,11 @@ func walkTile(ix *geodesy.Index, maxD float64, gap func(lo, hi float64) float64,
 // elsewhere, where walkTile measures the horizontal steps it needs and
 // passes no room between rows), and walkTile's scratch.
 type bandSteps struct {
-	h                              []float64 // band row k: between horizontal neighbours
-	v, diag                        []float64 // between band rows k and k+1: vertical, diagonal neighbours
-	prevD, prevRoom, curD, curRoom []float64
-	near                           geodesy.Near
+	h                 []float64 // band row k: between horizontal neighbours
+	v, diag           []float64 // between band rows k and k+1: vertical, diagonal neighbours
+	prevD, curD       []int32   // classes of walkTile's previous and current row
+	prevRoom, curRoom []float64
+	near              geodesy.Near
 }
 
 // maxNear is the longest list of sites walkTile bounds its cells
@@ -408,9 +437,8 @@ func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float
 
 func newBandSteps() *bandSteps {
 	st := &bandSteps{h: make([]float64, tileSide), v: make([]float64, tileSide), diag: make([]float64, tileSide)}
-	for _, p := range []*[]float64{&st.prevD, &st.prevRoom, &st.curD, &st.curRoom} {
-		*p = make([]float64, tileSide)
-	}
+	st.prevD, st.curD = make([]int32, tileSide), make([]int32, tileSide)
+	st.prevRoom, st.curRoom = make([]float64, tileSide), make([]float64, tileSide)
 	return st
 }
 
@@ -568,9 +596,9 @@ func (p *bandPoints) at(k, c int) geodesy.Point {
 	return geodesy.NewPoint(p.lats[k][c], p.lons[k][c])
 }
 
-// bounds is ix.NearestBounds at pt, started from the hint.
+// bounds is ix.TightBoundsAt at pt, started from the hint.
 func (p *bandPoints) bounds(ix *geodesy.Index, pt *geodesy.Point, maxDist float64) (lo, hi float64) {
-	lo, hi, slot := ix.BoundsAt(pt, maxDist, p.hint)
+	lo, hi, slot := ix.TightBoundsAt(pt, maxDist, p.hint)
 	if slot >= 0 {
 		p.hint = slot
 	}
