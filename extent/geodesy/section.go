@@ -34,6 +34,8 @@ const sectionMaxChord = 3e6
 // The bound exceeds the geodesic by about D^3 / 24 (1/rho^2 - 1/R^2), R the
 // radius of curvature along the line: under 5 m at 700 km, where
 // NearestBounds' upper bound is up to 0.17% (1.2 km) above.
+// The distance-only null (extent/nullmodel) brackets its chords with the
+// same bound, argued on the geodesic itself as a space curve.
 func sectionUpper(D float64) float64 {
 	if !(D <= sectionMaxChord) {
 		return math.Inf(1)
