@@ -10,7 +10,6 @@ import (
 
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
-	d     []float64
 	row   nullmodel.Row
 	span  extent.SpanScratch
 	runs  []int32 // the runs of the batch
@@ -32,11 +31,7 @@ func NullTally(fam *extent.Family, bg *nullmodel.Background) func(row, c0 int, v
 	return func(row, c0 int, vals []float64, w []int64) {
 		sc := pool.Get().(*tallyScratch)
 		defer pool.Put(sc)
-		sc.d = sc.d[:0]
-		for _, v := range vals {
-			sc.d = append(sc.d, 0-v)
-		}
-		sc.row.Set(sc.d, w)
+		sc.row.SetValues(vals, w)
 		t := bg.Tally()
 		defer t.Done()
 		flush := func() {

@@ -43,15 +43,21 @@ type Binner = interface {
 // the midpoint and the exact value (bins are intervals), in every
 // accumulator at every level it may reach.
 type floorBinner struct {
-	l *metrics.Layout
-	s float64 // 2^-e for the floor exponent e
+	l     *metrics.Layout
+	s     float64   // 2^-e for the floor exponent e
+	edges []float64 // nullmodel.FloorEdges of the layout's values
 }
 
 // newFloorBinner returns the Binner of a floored layout.
 func newFloorBinner(l *metrics.Layout) floorBinner {
 	e, _ := l.HistFloor()
-	return floorBinner{l: l, s: math.Ldexp(1, -e)}
+	s := math.Ldexp(1, -e)
+	return floorBinner{l: l, s: s, edges: nullmodel.FloorEdges(l.Values(), s)}
 }
+
+// FloorEdges returns the edge of an exact bin in each floor bin (see
+// nullmodel.EdgeBinner); read-only, shared by the workers.
+func (b floorBinner) FloorEdges() []float64 { return b.edges }
 
 // Cell returns the values that share v's exact bin (see
 // nullmodel.Binner and metrics.Layout.Cell).
@@ -70,6 +76,15 @@ func (b floorBinner) FloorScale() float64 { return b.s }
 type BoundedField interface {
 	Field
 	Bounds(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64)
+}
+
+// negBounder is a BoundedField that can give the bounds of minus its
+// values: Bracket sets lo and hi as Bounds would set 0 - hi and 0 - lo
+// (the distance-only null's distances, nullmodel.Field.Bracket), so that a
+// Virtual negates them in its own walk of the block instead of a walk of
+// Bounds'.
+type negBounder interface {
+	Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64)
 }
 
 // VirtualBlock is the side, in cells, of the blocks of a Virtual: a
@@ -145,7 +160,14 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 		return nil
 	}
 	lo, hi := s.lo[:w*h], s.hi[:w*h]
-	s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
+	neg := false
+	if nb, ok := s.bf.(negBounder); ok {
+		// The bounds of minus the values, negated in the walk below.
+		nb.Bracket(x0, y0, w, h, need, s.bins, lo, hi)
+		neg = true
+	} else {
+		s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
+	}
 	// The values shown to Options.Rows and the preview are the midpoints
 	// of the cells' own bounds, taken before exactExtremes: which cells it
 	// computes depends on the block and on the family around the cell
@@ -164,6 +186,14 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 		e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
 		los, his := lo[y*w:(y+1)*w], hi[y*w:(y+1)*w]
 		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
+		if neg {
+			// lo and hi bound minus the values: [0 - hi, 0 - lo] bounds
+			// the values, as Bounds would give them.
+			for i, d := range los {
+				l, u := 0-his[i], 0-d
+				los[i], his[i] = l, u
+			}
+		}
 		for i, l := range los {
 			u := his[i]
 			m := l
