@@ -402,7 +402,9 @@ type bracketer struct {
 	// nothing) and the floor grid's scale.
 	cellLo, cellHi float64
 	cellClosed     bool
-	scale, binW    float64   // 2^-e and 2^e
+	scale, binW    float64  // 2^-e and 2^e
+	big            *stencil // the stencil of super-tile row bigRow
+	bigRow         int
 	edges          []float64 // EdgeBinner's FloorEdges, or nil
 	nEdges         float64   // len(edges)
 	tail           bool      // the floor bins beyond edges hold no edge
@@ -463,7 +465,11 @@ func (b *bracketer) super(sr, scol int) {
 	// The stencil of the super-tile's row (the same for every super-tile
 	// of the row) holds the geodesic from the centre to each of its cells:
 	// rho bounds them all, with the slack of Distances' tiles.
-	big := ll.stencil(SuperTile/2, sr)
+	if b.big == nil || b.bigRow != sr {
+		// The super-tiles are walked row by row: one lookup per row.
+		b.big, b.bigRow = ll.stencil(SuperTile/2, sr), sr
+	}
+	big := b.big
 	ok := big.ok
 	rho := big.tmax*1.02 + 1
 	if ok {

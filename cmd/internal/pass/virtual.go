@@ -120,6 +120,7 @@ const VirtualBlock = 240
 type Virtual struct {
 	g     *extent.Grid
 	field Field
+	bg    *nullmodel.Background // Tally's background, or nil
 }
 
 // NewVirtual returns the virtual model of field on grid g.
@@ -149,6 +150,7 @@ type virtualSource struct {
 	rowLo, rowHi []float64     // per row and member: smallest lower and largest upper bound
 	whole        []rowExtremes // per block row: the extremes of all its cells
 	one          [1]float64
+	tally        *rowTally // Virtual.Tally's, on the bounded path
 }
 
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
@@ -186,16 +188,14 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 		e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
 		los, his := lo[y*w:(y+1)*w], hi[y*w:(y+1)*w]
 		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
-		if neg {
-			// lo and hi bound minus the values: [0 - hi, 0 - lo] bounds
-			// the values, as Bounds would give them.
-			for i, d := range los {
-				l, u := 0-his[i], 0-d
-				los[i], his[i] = l, u
-			}
-		}
 		for i, l := range los {
 			u := his[i]
+			if neg {
+				// lo and hi bound minus the values: [0 - hi, 0 - lo]
+				// bounds the values, as Bounds would give them.
+				l, u = 0-u, 0-l
+				los[i], his[i] = l, u
+			}
 			m := l
 			if m != u {
 				m = (m + u) / 2
@@ -294,12 +294,19 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 		s.rowLo, s.rowHi = make([]float64, h*nm), make([]float64, h*nm)
 	}
 	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
+	tl := s.tally
 	for y := range h {
 		s.prev = s.prev[:0]
 		first := true
 		var mn, mx, rl, rh float64
+		if tl != nil {
+			tl.begin(y0+y, x0, s.shown[y*w:(y+1)*w])
+		}
 		for _, seq := range s.groups {
 			s.fam.Rings(seq, y0+y, x0, x0+w, &s.span, func(k int, runs []int32) {
+				if tl != nil {
+					tl.add(k, runs)
+				}
 				if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
 					// The whole row: its extremes from ReadBlock's walk.
 					e := s.whole[y]
@@ -333,6 +340,9 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
 				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
 			})
+		}
+		if tl != nil {
+			tl.end()
 		}
 	}
 	for y := range h {
@@ -377,6 +387,17 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 	if _, floored := layout.HistFloor(); !floored {
 		bf = nil // histogram edges unknown before the pass: compute every cell
 	}
+	if v.bg != nil && bf == nil {
+		// No bounds, so no walk of the extremes: the tally as a row hook.
+		tally, rows := NullTally(fam, v.bg), opt.Rows
+		opt.Rows = tally
+		if rows != nil {
+			opt.Rows = func(row, c0 int, vals []float64, w []int64) {
+				rows(row, c0, vals, w)
+				tally(row, c0, vals, w)
+			}
+		}
+	}
 	var fb floorBinner
 	if bf != nil {
 		fb = newFloorBinner(layout)
@@ -388,6 +409,9 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
 			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
+			if v.bg != nil {
+				src.tally = &rowTally{g: g, bg: v.bg}
+			}
 		}
 		return src, nil
 	}
