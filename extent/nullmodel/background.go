@@ -130,13 +130,13 @@ func (b *Background) Add(k int, dist []float64, weights []int64) {
 // extents the cells are added to, so that a run's sums are two
 // differences. When every cell has the same weight w (rows of a
 // latitude-longitude or equal-area grid) the prefix sums are those of the
-// millimetres alone, and a run's sum is w times their difference: the same
-// integer, as long as a row's millimetres add up below 2^64 (rows shorter
+// millimetres alone, a run's sum is w times their difference (the same
+// integer) and no weight is kept per cell, as long as a row's millimetres add up below 2^64 (rows shorter
 // than maxConstRow of distances below 2^27 m, the histogram's range;
 // other rows take the 128-bit sums).
 type Row struct {
 	bin    []int32
-	w      []int64
+	w      []int64  // each cell's weight, when they differ (constW false)
 	pa     []int64  // pa[i]: sum of the weights of cells < i
 	ph, pl []uint64 // sum of weight x mm of cells < i, high and low words (mod 2^128)
 	pm     []uint64 // one weight w: sum of mm of cells < i
@@ -150,7 +150,15 @@ const maxConstRow = 1 << 26
 
 // Set prepares the cells: distance dist[i] (m; NaN: the cell is skipped)
 // and area weight weights[i] >= 0.
-func (r *Row) Set(dist []float64, weights []int64) {
+func (r *Row) Set(dist []float64, weights []int64) { r.set(dist, false, weights) }
+
+// SetValues is Set on the distances 0 - vals[i]: the null model's values
+// (minus the distances), without a copy.
+func (r *Row) SetValues(vals []float64, weights []int64) { r.set(vals, true, weights) }
+
+// set is Set on dist, or on 0 - dist[i] when neg. Rows of one weight keep
+// no weight per cell (the histogram adds w0).
+func (r *Row) set(dist []float64, neg bool, weights []int64) {
 	n := len(dist)
 	if cap(r.bin) < n || cap(r.pa) < n+1 {
 		r.bin, r.w = make([]int32, n), make([]int64, n)
@@ -169,14 +177,18 @@ func (r *Row) Set(dist []float64, weights []int64) {
 		r.w0 = uint64(w)
 		var sum uint64
 		far := false
+		bin, pa, pm := r.bin[:n], r.pa[:n], r.pm[:n]
 		for i, d := range dist {
-			r.pa[i], r.pm[i] = area, sum
-			if math.IsNaN(d) {
-				r.bin[i], r.w[i] = -1, 0
+			if neg {
+				d = 0 - d
+			}
+			pa[i], pm[i] = area, sum
+			if d != d { // NaN
+				bin[i] = -1
 				continue
 			}
 			far = far || !(d < 1<<27)
-			r.bin[i], r.w[i] = int32(distBin(d)), w
+			bin[i] = int32(distBin(d))
 			sum += roundMM(d)
 			area += w
 		}
@@ -188,6 +200,9 @@ func (r *Row) Set(dist []float64, weights []int64) {
 	}
 	var sumHi, sumLo uint64
 	for i, d := range dist {
+		if neg {
+			d = 0 - d
+		}
 		r.pa[i], r.ph[i], r.pl[i] = area, sumHi, sumLo
 		if math.IsNaN(d) {
 			r.bin[i], r.w[i] = -1, 0
@@ -202,6 +217,27 @@ func (r *Row) Set(dist []float64, weights []int64) {
 		sumHi, _ = bits.Add64(sumHi, ph, carry)
 	}
 	r.pa[n], r.ph[n], r.pl[n] = area, sumHi, sumLo
+}
+
+// addHist adds the weights of cells lo <= i < hi of r to hist, at their
+// bins (NaN cells left out).
+func (r *Row) addHist(hist []int64, lo, hi int) {
+	bins := r.bin[lo:hi]
+	if r.constW {
+		w := int64(r.w0)
+		for _, j := range bins {
+			if j >= 0 {
+				hist[j] += w
+			}
+		}
+		return
+	}
+	ws := r.w[lo:hi]
+	for i, j := range bins {
+		if j >= 0 {
+			hist[j] += ws[i]
+		}
+	}
 }
 
 // roundMM returns math.Round(d*1000) as an integer for a distance d >= 0
@@ -246,12 +282,7 @@ func (t Tally) Done() { t.sh.mu.Unlock() }
 func (t Tally) Add(k int, r *Row, lo, hi int) {
 	e := t.ext(k)
 	t.runSums(e, r, lo, hi)
-	bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], e.hist
-	for i, j := range bins {
-		if j >= 0 {
-			hist[j] += ws[i]
-		}
-	}
+	r.addHist(e.hist, lo, hi)
 }
 
 // AddAll adds cells lo <= i < hi of row r to each extent of ks (each >= 0,
@@ -271,12 +302,7 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 	}
 	if c := t.class(ks); c != nil {
 		t.runSums(&c.ext, r, lo, hi)
-		bins, ws, hist := r.bin[lo:hi], r.w[lo:hi], c.ext.hist
-		for i, j := range bins {
-			if j >= 0 {
-				hist[j] += ws[i]
-			}
-		}
+		r.addHist(c.ext.hist, lo, hi)
 		return
 	}
 	var hists [8][]int64
@@ -288,12 +314,15 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 			hists[q] = e.hist
 		}
 		hs := hists[:n]
-		bins, ws := r.bin[lo:hi], r.w[lo:hi]
+		bins := r.bin[lo:hi]
 		for i, j := range bins {
 			if j < 0 {
 				continue
 			}
-			w := ws[i]
+			w := int64(r.w0)
+			if !r.constW {
+				w = r.w[i+lo]
+			}
 			for _, h := range hs {
 				h[j] += w
 			}

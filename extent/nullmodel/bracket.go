@@ -28,6 +28,59 @@ type Binner = interface {
 	FloorScale() float64
 }
 
+// EdgeBinner is a Binner that also lists, per floor bin, the edges of the
+// exact bins inside it: FloorEdges()[c] is the one value v whose exact bin
+// is {v} (an edge) in the floor bin of the values [-c 2^e, -(c-1) 2^e)
+// (bin -c), +Inf when that floor bin holds none (it lies inside one exact
+// bin) and NaN when it holds several; the floor bins beyond the slice hold
+// none. Two values u1 <= u2 of floor bin -c with edge v share their exact
+// bin when u2 < v or u1 > v, without asking Cell. Bracket uses it when its
+// Binner has it (FloorEdges builds the slice).
+type EdgeBinner interface {
+	Binner
+	FloorEdges() []float64
+}
+
+// FloorEdges returns the FloorEdges slice of a layout whose exact bins
+// have the single values edges (any order; the open intervals between
+// them are the other bins) on the floor grid of scale s = 2^-e, up to the
+// farthest floor bin -c that holds an edge. The floor bin of v is
+// floor(v s), as Binner.FloorScale says (-0 counted as +0, a tiny
+// negative v whose product underflows in bin -1). It returns nil (no bin
+// known) when an edge is not finite or lies beyond maxFloorEdges bins.
+func FloorEdges(edges []float64, s float64) []float64 {
+	const maxFloorEdges = 1 << 22
+	bin := func(v float64) int64 {
+		x := v * s
+		if x == 0 && v < 0 {
+			return -1
+		}
+		return int64(math.Floor(x))
+	}
+	n := int64(0)
+	for _, v := range edges {
+		if !(v-v == 0) || -bin(v) >= maxFloorEdges {
+			return nil
+		}
+		n = max(n, -bin(v)+1)
+	}
+	out := make([]float64, n)
+	for c := range out {
+		out[c] = math.Inf(1)
+	}
+	for _, v := range edges {
+		c := -bin(v)
+		switch {
+		case c < 0:
+		case math.IsInf(out[c], 1) || out[c] == v:
+			out[c] = v
+		default:
+			out[c] = math.NaN()
+		}
+	}
+	return out
+}
+
 // BracketTol is our choice of the largest relative error of the midpoint
 // of a bracket that Bracket leaves unresolved: (hi - lo)/2 <= BracketTol *
 // lo, so the midpoint is within 0.1% of the cell's distance, the width of
@@ -268,8 +321,21 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 		f.bracketProjected(x0, y0, w, h, need, bins, lo, hi)
 		return
 	}
-	for i := range n {
-		lo[i], hi[i] = math.NaN(), math.NaN()
+	// Every needed cell whose centre has a latitude in [-90, 90] gets its
+	// bracket below (the super-tiles, their patches or exactRange set it),
+	// so NaN goes only where that may not happen.
+	ll := f.ll
+	if !(math.Abs(ll.lat(y0)) <= 90 && math.Abs(ll.lat(y0+h-1)) <= 90) {
+		for i := range n {
+			lo[i], hi[i] = math.NaN(), math.NaN()
+		}
+	} else if need != nil {
+		nan := math.NaN()
+		for i, v := range need[:n] {
+			if v == 0 {
+				lo[i], hi[i] = nan, nan
+			}
+		}
 	}
 	sc := scratchPool.Get().(*scratch)
 	defer scratchPool.Put(sc)
@@ -289,6 +355,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
 		left: sc.left[:0], cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+	b.setEdges()
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
 	}
@@ -335,7 +402,22 @@ type bracketer struct {
 	// nothing) and the floor grid's scale.
 	cellLo, cellHi float64
 	cellClosed     bool
-	scale, binW    float64 // 2^-e and 2^e
+	scale, binW    float64  // 2^-e and 2^e
+	big            *stencil // the stencil of super-tile row bigRow
+	bigRow         int
+	edges          []float64 // EdgeBinner's FloorEdges, or nil
+	nEdges         float64   // len(edges)
+	tail           bool      // the floor bins beyond edges hold no edge
+}
+
+// setEdges takes the floor bins' edges of b.bins when it is an
+// EdgeBinner that has them.
+func (b *bracketer) setEdges() {
+	if eb, ok := b.bins.(EdgeBinner); ok {
+		b.edges = eb.FloorEdges()
+		b.tail = b.edges != nil
+	}
+	b.nEdges = float64(len(b.edges))
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -383,7 +465,11 @@ func (b *bracketer) super(sr, scol int) {
 	// The stencil of the super-tile's row (the same for every super-tile
 	// of the row) holds the geodesic from the centre to each of its cells:
 	// rho bounds them all, with the slack of Distances' tiles.
-	big := ll.stencil(SuperTile/2, sr)
+	if b.big == nil || b.bigRow != sr {
+		// The super-tiles are walked row by row: one lookup per row.
+		b.big, b.bigRow = ll.stencil(SuperTile/2, sr), sr
+	}
+	big := b.big
 	ok := big.ok
 	rho := big.tmax*1.02 + 1
 	if ok {
@@ -475,6 +561,12 @@ func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
 		if b.need != nil {
 			need = b.need[row+x1 : row+x2]
 		}
+		var ls, hs [SuperTile]float64
+		if one != nil {
+			// Every cell's taylorBracket first, needed or not: one loop
+			// with no call.
+			taylorRow(one, ts, sa, ca, ls[:len(lo)], hs[:len(lo)])
+		}
 		for x := range lo {
 			if need != nil && need[x] == 0 {
 				continue
@@ -482,7 +574,7 @@ func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
 			var l, h float64
 			if one != nil {
 				// anchorBracket of one site.
-				l1, h1 := taylorBracket(one, ts[x], sa[x], ca[x])
+				l1, h1 := ls[x], hs[x]
 				l, h = math.Inf(1), math.Inf(1)
 				if l1 < l {
 					l = l1
@@ -493,7 +585,7 @@ func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
 			} else {
 				l, h = b.anchorBracket(st, jr+x1+x)
 			}
-			if h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+			if b.quick(l, h) || b.settled(l, h) {
 				lo[x], hi[x] = l, h
 				continue
 			}
@@ -511,7 +603,7 @@ func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64) bool
 	lo, hi := b.anchorBracket(st, j)
 	// Both brackets hold the distance: keep their intersection.
 	lo, hi = max(lo, clo), min(hi, chi)
-	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+	if b.quick(lo, hi) || b.settled(lo, hi) {
 		b.lo[i], b.hi[i] = lo, hi
 		return false
 	}
@@ -641,7 +733,7 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 			if need != nil && need[x] == 0 {
 				continue
 			}
-			if h := hs[x]; h-l <= 2*BracketTol*l && b.sameBins(l, h) {
+			if h := hs[x]; b.quick(l, h) || b.settled(l, h) {
 				lo[x], hi[x] = l, h
 				continue
 			}
@@ -717,7 +809,7 @@ func (b *bracketer) cell(i int, st *stencil, j int) bool {
 	lo, hi := b.anchorBracket(st, j)
 	// Both brackets hold the distance: keep their intersection.
 	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
-	if hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi) {
+	if b.quick(lo, hi) || b.settled(lo, hi) {
 		b.lo[i], b.hi[i] = lo, hi
 		return true
 	}
@@ -880,6 +972,27 @@ func sortSites(m []anchorSite) {
 	}
 }
 
+// settled reports whether the bracket [lo, hi] of a distance is narrow
+// enough (hi - lo <= 2 BracketTol lo) and has its values -hi and -lo in the
+// same bins (sameBins). Callers write quick(lo, hi) || settled(lo, hi):
+// quick is small enough to be inlined and decides most brackets alone.
+func (b *bracketer) settled(lo, hi float64) bool {
+	return hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi)
+}
+
+// quick reports true only when settled does, without a call: when the
+// bracket is narrow enough and both ends share a floor bin and, by the
+// floor bin's edge (EdgeBinner), an exact bin. With x = lo s and y = hi s
+// (s = 2^-e: exact products for x >= 2^-1000), the floor bins of -hi and
+// -lo are -ceil(y) and -ceil(x), equal iff y <= ceil(x) (y >= x). A false
+// says nothing.
+func (b *bracketer) quick(lo, hi float64) bool {
+	x := lo * b.scale
+	c := math.Ceil(x)
+	return hi-lo <= 2*BracketTol*lo && x >= 0x1p-1000 && hi*b.scale <= c &&
+		(c < b.nEdges && (0-lo < b.edges[int(c)] || 0-hi > b.edges[int(c)]) || c >= b.nEdges && b.tail)
+}
+
 // sameBins reports whether the values -hi and -lo (lo <= hi) share their
 // bins: the same floor bin, and -lo in the exact-bin cell of -hi (see
 // Binner), which bins is asked for only when -hi is outside the last one.
@@ -973,6 +1086,63 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 		hi = h
 	}
 	return lo, hi
+}
+
+// taylorRow sets lo[x], hi[x] = taylorBracket(m, ts[x], sa[x], ca[x]) for
+// every x, bit for bit (the same operations in the same order; a loop
+// without a call per cell).
+func taylorRow(m *anchorSite, ts, sa, ca, lo, hi []float64) {
+	ts, sa, ca, hi = ts[:len(lo)], sa[:len(lo)], ca[:len(lo)], hi[:len(lo)]
+	margin, f0, inv, cz, sz := m.margin, m.f0, m.inv, m.cz, m.sz
+	for x, t := range ts {
+		l, h := max(0, f0-t-margin), f0+t+margin
+		if !m.taylor {
+			lo[x], hi[x] = l, h
+			continue
+		}
+		su, cu := sa[x], ca[x]
+		c0 := -(cu*cz + su*sz)
+		if c0 > 1 {
+			c0 = 1
+		} else if c0 < -1 {
+			c0 = -1
+		}
+		x1 := t * inv
+		ft := f0 + t
+		h1 := (1-x1)*inv - ft*kLo1 - ft*ft*ft*kLo3
+		h2 := (1 + x1 + 2*x1*x1) * inv
+		cc := c0 * c0
+		p2 := min1(c0 + t*h2)
+		q2 := 1.0
+		if c0 > 0 {
+			q2 = 1 - cc
+		} else if p2 < 0 {
+			q2 = 1 - p2*p2
+		}
+		p2 = min1(c0 + t*(h2*q2))
+		q1 := 1 - cc
+		if p2*p2 > cc {
+			q1 = 1 - p2*p2
+		}
+		if q1 < 0 {
+			q1 = 0
+		}
+		q2 = 1.0
+		if c0 > 0 {
+			q2 = 1 - cc
+		} else if p2 < 0 {
+			q2 = 1 - p2*p2
+		}
+		base := f0 + t*c0
+		half := t * t / 2
+		if v := base + h1*q1*half - margin; v > l {
+			l = v
+		}
+		if v := base + h2*q2*half + margin; v < h {
+			h = v
+		}
+		lo[x], hi[x] = l, h
+	}
 }
 
 // min1 returns p, or 1 when p > 1.

@@ -114,7 +114,102 @@ func TestBracketContainsDistance(t *testing.T) {
 					}
 				}
 			}
+			// A Binner that lists its floor bins' edges (as the pass's
+			// does) gives the same brackets.
+			eb := edgeBins{layout, FloorEdges(layout.l.Values(), layout.FloorScale())}
+			lo, hi := make([]float64, tc.w*tc.h), make([]float64, tc.w*tc.h)
+			f.Bracket(0, 0, tc.w, tc.h, nil, eb, lo, hi)
+			checkBrackets(t, "floor edges", want, lo, hi, nil, layout)
+			for i, l := range append(append([]float64{}, lo...), hi...) {
+				if math.Float64bits(l) != math.Float64bits(ref[i]) {
+					t.Fatalf("floor edges: bracket of cell %d differs", i%len(lo))
+				}
+			}
 		})
+	}
+}
+
+// edgeBins is floorBins with its floor bins' edges (EdgeBinner).
+type edgeBins struct {
+	floorBins
+	edges []float64
+}
+
+func (b edgeBins) FloorEdges() []float64 { return b.edges }
+
+// TestFloorEdges checks FloorEdges against the layout's own bins: in each
+// floor bin -c of the slice, +Inf means the bin lies inside one open exact
+// bin, a value v means v is the bin's only edge (both parts beside it lie
+// inside one open exact bin each), NaN means two edges or more; every
+// layout value's floor bin is listed with it or NaN, and no floor bin
+// beyond the slice holds a value.
+func TestFloorEdges(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	counts := map[string]int{}
+	for trial := range 50 {
+		n := 1 + r.IntN(400)
+		vals := make([]float64, n)
+		for i := range vals {
+			vals[i] = -r.Float64() * 1e5
+			if i%7 == 0 && i > 0 {
+				vals[i] = vals[i-1] // ties
+			}
+			if i%11 == 0 && i > 0 {
+				vals[i] = vals[i-1] - 1 // two edges in one floor bin
+			}
+		}
+		l, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(metrics.FloorExp(1e5/4096)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fb := newFloorBins(l)
+		s := fb.FloorScale()
+		edges := FloorEdges(l.Values(), s)
+		// inside reports whether [a, z] lies in one open exact bin.
+		inside := func(a, z float64) bool {
+			lo, hi, closed := fb.Cell(a)
+			return !closed && lo < a && z < hi
+		}
+		for c := 1; c < len(edges); c++ {
+			a, z := -float64(c)/s, math.Nextafter(-float64(c-1)/s, math.Inf(-1))
+			if l.FloorBin(a) != int64(-c) || l.FloorBin(z) != int64(-c) {
+				t.Fatalf("trial %d: bin %d: ends %v %v not in floor bin %d", trial, c, a, z, -c)
+			}
+			switch v := edges[c]; {
+			case math.IsInf(v, 1):
+				counts["none"]++
+				if !inside(a, z) {
+					t.Fatalf("trial %d: bin %d [%v, %v] said to hold no edge", trial, c, a, z)
+				}
+			case math.IsNaN(v):
+				counts["several"]++
+			default:
+				counts["one"]++
+				if l.FloorBin(v) != int64(-c) {
+					t.Fatalf("trial %d: bin %d: edge %v outside it", trial, c, v)
+				}
+				if lo, hi, closed := fb.Cell(v); !closed || lo != v || hi != v {
+					t.Fatalf("trial %d: bin %d: %v is not an edge", trial, c, v)
+				}
+				if v > a && !inside(a, math.Nextafter(v, math.Inf(-1))) || v < z && !inside(math.Nextafter(v, math.Inf(1)), z) {
+					t.Fatalf("trial %d: bin %d [%v, %v] has another edge than %v", trial, c, a, z, v)
+				}
+			}
+		}
+		for _, v := range l.Values() {
+			c := -l.FloorBin(v)
+			if c >= int64(len(edges)) {
+				t.Fatalf("trial %d: value %v beyond the slice", trial, v)
+			}
+			if c >= 1 && edges[c] != v && !math.IsNaN(edges[c]) {
+				t.Fatalf("trial %d: value %v: floor bin %d lists %v", trial, v, c, edges[c])
+			}
+		}
+	}
+	for _, k := range []string{"none", "one", "several"} {
+		if counts[k] == 0 {
+			t.Fatalf("no floor bin with %s edge: %v", k, counts)
+		}
 	}
 }
 
@@ -274,4 +369,32 @@ func bracketBlocks(f *Field, w, h int, layout Binner, lo, hi []float64) int {
 		}
 	}
 	return exact
+}
+
+// TestTaylorRow checks that taylorRow, the loop form of taylorBracket used
+// on a super-tile's rows, gives taylorBracket's brackets bit for bit, on
+// random sites and cells, Taylor and 1-Lipschitz alike, with the stencil
+// lengths and azimuths of a real row.
+func TestTaylorRow(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	for trial := range 2000 {
+		f0 := math.Exp(r.Float64()*math.Log(6e6/10)) * 10
+		az := (r.Float64()*2 - 1) * math.Pi
+		m := anchorSite{f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, taylor: trial%5 != 0}
+		m.sz, m.cz = math.Sincos(az)
+		n := 1 + r.IntN(SuperTile)
+		ts, sa, ca := make([]float64, n), make([]float64, n), make([]float64, n)
+		for x := range n {
+			ts[x] = r.Float64() * f0 / 2
+			sa[x], ca[x] = math.Sincos((r.Float64()*2 - 1) * math.Pi)
+		}
+		lo, hi := make([]float64, n), make([]float64, n)
+		taylorRow(&m, ts, sa, ca, lo, hi)
+		for x := range n {
+			l, h := taylorBracket(&m, ts[x], sa[x], ca[x])
+			if math.Float64bits(l) != math.Float64bits(lo[x]) || math.Float64bits(h) != math.Float64bits(hi[x]) {
+				t.Fatalf("trial %d cell %d: taylorRow [%v, %v], taylorBracket [%v, %v]", trial, x, lo[x], hi[x], l, h)
+			}
+		}
+	}
 }

@@ -244,6 +244,7 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 	}
 	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
 		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}}
+	b.bins.setEdges()
 	for r0 := 0; r0 < h; r0 += tileSide {
 		for c0 := 0; c0 < w; c0 += tileSide {
 			b.tile(r0, min(r0+tileSide, h), c0, min(c0+tileSide, w))
@@ -370,7 +371,7 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 				d2 = min(d2, dx*dx+dy*dy+dz*dz)
 			}
 			lo, hi := chordBracket(math.Sqrt(d2))
-			if hi-lo <= 2*BracketTol*lo && b.bins.sameBins(lo, hi) {
+			if b.bins.quick(lo, hi) || b.bins.settled(lo, hi) {
 				b.lo[i], b.hi[i] = lo, hi
 				continue
 			}
@@ -563,7 +564,7 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 				lo, hi = min(lo, l1), min(hi, h1)
 			}
 			lo, hi = max(lo, sc.clo[i]), min(hi, sc.chi[i])
-			if hi-lo <= 2*BracketTol*lo && b.bins.sameBins(lo, hi) {
+			if b.bins.quick(lo, hi) || b.bins.settled(lo, hi) {
 				b.lo[i], b.hi[i] = lo, hi
 				continue
 			}

@@ -62,7 +62,9 @@ func BenchmarkNullVsRaster(b *testing.B) {
 					}
 					t1 := cpuNow(b)
 					var bg nullmodel.Background
-					if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: NullTally(fam, &bg)}); err != nil {
+					vt := NewVirtual(g, v.field)
+					vt.Tally(fam, &bg)
+					if _, _, err := vt.Score(g, fam, layout, Options{Workers: 2}); err != nil {
 						b.Fatal(err)
 					}
 					t2 := cpuNow(b)

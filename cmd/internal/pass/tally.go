@@ -10,7 +10,6 @@ import (
 
 // tallyScratch is one goroutine's row buffers for the sorting-bias tally.
 type tallyScratch struct {
-	d     []float64
 	row   nullmodel.Row
 	span  extent.SpanScratch
 	runs  []int32 // the runs of the batch
@@ -32,11 +31,7 @@ func NullTally(fam *extent.Family, bg *nullmodel.Background) func(row, c0 int, v
 	return func(row, c0 int, vals []float64, w []int64) {
 		sc := pool.Get().(*tallyScratch)
 		defer pool.Put(sc)
-		sc.d = sc.d[:0]
-		for _, v := range vals {
-			sc.d = append(sc.d, 0-v)
-		}
-		sc.row.Set(sc.d, w)
+		sc.row.SetValues(vals, w)
 		t := bg.Tally()
 		defer t.Done()
 		flush := func() {
@@ -63,4 +58,107 @@ func NullTally(fam *extent.Family, bg *nullmodel.Background) func(row, c0 int, v
 		}
 		flush()
 	}
+}
+
+// Tally makes the passes of v tally the distance-only null's distances
+// (minus its values) into bg, the sorting-bias background of every ok
+// member of fam, as NullTally's row hook would: the same cells, values
+// (the midpoints of each cell's own bounds) and weights, each cell to its
+// ring in each nested group (bg.Nest is called now). On the bounded path
+// each worker's source adds a block's rows in the walk of the family's
+// rings that finds the block's extremes (see exactExtremes), so the rings
+// of a row are walked once for both; otherwise the pass calls NullTally's
+// hook. fam must be the family the passes score.
+func (v *Virtual) Tally(fam *extent.Family, bg *nullmodel.Background) {
+	bg.Nest(fam.Groups())
+	v.bg = bg
+}
+
+// rowTally is one worker's sorting-bias tally inside a Virtual's source:
+// begin a row, add each member's ring runs as Family.Rings gives them,
+// end the row. A row is prepared (nullmodel.Row) only when some member
+// has cells in it, as the pass calls its row hook only for those rows.
+type rowTally struct {
+	g       *extent.Grid
+	bg      *nullmodel.Background
+	row, c0 int
+	vals    []float64
+	set     bool // the row is prepared and t held
+	t       nullmodel.Tally
+	r       nullmodel.Row
+	runs    []int32 // the runs of the batch
+	batch   []int   // members whose ring has those runs in the row
+	areas   []float64
+	weights []int64
+	rowW    []int64 // grids of one cell area per row: 1 + the row's weight, 0 until computed
+}
+
+func (tl *rowTally) begin(row, c0 int, vals []float64) {
+	tl.row, tl.c0, tl.vals, tl.set = row, c0, vals, false
+	tl.batch = tl.batch[:0]
+}
+
+// add takes member k's ring runs in the row (NullTally's add).
+func (tl *rowTally) add(k int, runs []int32) {
+	if len(runs) == 0 {
+		return
+	}
+	if len(tl.batch) > 0 && !slices.Equal(runs, tl.runs) {
+		tl.flush()
+	}
+	if len(tl.batch) == 0 {
+		tl.runs = append(tl.runs[:0], runs...)
+	}
+	tl.batch = append(tl.batch, k)
+}
+
+// flush adds the batch's runs to its members, preparing the row first.
+func (tl *rowTally) flush() {
+	if !tl.set {
+		tl.r.SetValues(tl.vals, tl.rowWeights())
+		tl.t = tl.bg.Tally()
+		tl.set = true
+	}
+	for i := 0; i < len(tl.runs); i += 2 {
+		tl.t.AddAll(tl.batch, &tl.r, int(tl.runs[i])-tl.c0, int(tl.runs[i+1])-tl.c0)
+	}
+	tl.batch = tl.batch[:0]
+}
+
+// end adds the last batch and releases the partial sum.
+func (tl *rowTally) end() {
+	if len(tl.batch) > 0 {
+		tl.flush()
+	}
+	if tl.set {
+		tl.t.Done()
+		tl.set = false
+	}
+}
+
+// rowWeights returns the integer area weights of the row's cells, those
+// the pass adds (RowWeights; one weight per row, computed once, on grids
+// whose rows have one cell area).
+func (tl *rowTally) rowWeights() []int64 {
+	g, n := tl.g, len(tl.vals)
+	if !g.Geographic && !g.EqualArea {
+		tl.areas, tl.weights = RowWeights(g, tl.row, tl.c0, tl.c0+n, tl.areas, tl.weights)
+		return tl.weights
+	}
+	if tl.rowW == nil {
+		tl.rowW = make([]int64, g.Height)
+	}
+	if tl.rowW[tl.row] == 0 {
+		var one []int64
+		tl.areas, one = RowWeights(g, tl.row, tl.c0, tl.c0+1, tl.areas, tl.weights)
+		tl.rowW[tl.row] = 1 + one[0]
+	}
+	if cap(tl.weights) < n {
+		tl.weights = make([]int64, n)
+	}
+	w := tl.weights[:n]
+	for i := range w {
+		w[i] = tl.rowW[tl.row] - 1
+	}
+	return w
 }

@@ -43,15 +43,21 @@ type Binner = interface {
 // the midpoint and the exact value (bins are intervals), in every
 // accumulator at every level it may reach.
 type floorBinner struct {
-	l *metrics.Layout
-	s float64 // 2^-e for the floor exponent e
+	l     *metrics.Layout
+	s     float64   // 2^-e for the floor exponent e
+	edges []float64 // nullmodel.FloorEdges of the layout's values
 }
 
 // newFloorBinner returns the Binner of a floored layout.
 func newFloorBinner(l *metrics.Layout) floorBinner {
 	e, _ := l.HistFloor()
-	return floorBinner{l: l, s: math.Ldexp(1, -e)}
+	s := math.Ldexp(1, -e)
+	return floorBinner{l: l, s: s, edges: nullmodel.FloorEdges(l.Values(), s)}
 }
+
+// FloorEdges returns the edge of an exact bin in each floor bin (see
+// nullmodel.EdgeBinner); read-only, shared by the workers.
+func (b floorBinner) FloorEdges() []float64 { return b.edges }
 
 // Cell returns the values that share v's exact bin (see
 // nullmodel.Binner and metrics.Layout.Cell).
@@ -70,6 +76,15 @@ func (b floorBinner) FloorScale() float64 { return b.s }
 type BoundedField interface {
 	Field
 	Bounds(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64)
+}
+
+// negBounder is a BoundedField that can give the bounds of minus its
+// values: Bracket sets lo and hi as Bounds would set 0 - hi and 0 - lo
+// (the distance-only null's distances, nullmodel.Field.Bracket), so that a
+// Virtual negates them in its own walk of the block instead of a walk of
+// Bounds'.
+type negBounder interface {
+	Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64)
 }
 
 // VirtualBlock is the side, in cells, of the blocks of a Virtual: a
@@ -105,6 +120,7 @@ const VirtualBlock = 240
 type Virtual struct {
 	g     *extent.Grid
 	field Field
+	bg    *nullmodel.Background // Tally's background, or nil
 }
 
 // NewVirtual returns the virtual model of field on grid g.
@@ -134,6 +150,7 @@ type virtualSource struct {
 	rowLo, rowHi []float64     // per row and member: smallest lower and largest upper bound
 	whole        []rowExtremes // per block row: the extremes of all its cells
 	one          [1]float64
+	tally        *rowTally // Virtual.Tally's, on the bounded path
 }
 
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
@@ -145,7 +162,14 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 		return nil
 	}
 	lo, hi := s.lo[:w*h], s.hi[:w*h]
-	s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
+	neg := false
+	if nb, ok := s.bf.(negBounder); ok {
+		// The bounds of minus the values, negated in the walk below.
+		nb.Bracket(x0, y0, w, h, need, s.bins, lo, hi)
+		neg = true
+	} else {
+		s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
+	}
 	// The values shown to Options.Rows and the preview are the midpoints
 	// of the cells' own bounds, taken before exactExtremes: which cells it
 	// computes depends on the block and on the family around the cell
@@ -166,6 +190,12 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
 		for i, l := range los {
 			u := his[i]
+			if neg {
+				// lo and hi bound minus the values: [0 - hi, 0 - lo]
+				// bounds the values, as Bounds would give them.
+				l, u = 0-u, 0-l
+				los[i], his[i] = l, u
+			}
 			m := l
 			if m != u {
 				m = (m + u) / 2
@@ -264,12 +294,19 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 		s.rowLo, s.rowHi = make([]float64, h*nm), make([]float64, h*nm)
 	}
 	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
+	tl := s.tally
 	for y := range h {
 		s.prev = s.prev[:0]
 		first := true
 		var mn, mx, rl, rh float64
+		if tl != nil {
+			tl.begin(y0+y, x0, s.shown[y*w:(y+1)*w])
+		}
 		for _, seq := range s.groups {
 			s.fam.Rings(seq, y0+y, x0, x0+w, &s.span, func(k int, runs []int32) {
+				if tl != nil {
+					tl.add(k, runs)
+				}
 				if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
 					// The whole row: its extremes from ReadBlock's walk.
 					e := s.whole[y]
@@ -303,6 +340,9 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
 				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
 			})
+		}
+		if tl != nil {
+			tl.end()
 		}
 	}
 	for y := range h {
@@ -347,6 +387,17 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 	if _, floored := layout.HistFloor(); !floored {
 		bf = nil // histogram edges unknown before the pass: compute every cell
 	}
+	if v.bg != nil && bf == nil {
+		// No bounds, so no walk of the extremes: the tally as a row hook.
+		tally, rows := NullTally(fam, v.bg), opt.Rows
+		opt.Rows = tally
+		if rows != nil {
+			opt.Rows = func(row, c0 int, vals []float64, w []int64) {
+				rows(row, c0, vals, w)
+				tally(row, c0, vals, w)
+			}
+		}
+	}
 	var fb floorBinner
 	if bf != nil {
 		fb = newFloorBinner(layout)
@@ -358,6 +409,9 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
 			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
+			if v.bg != nil {
+				src.tally = &rowTally{g: g, bg: v.bg}
+			}
 		}
 		return src, nil
 	}

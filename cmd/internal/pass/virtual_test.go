@@ -279,6 +279,71 @@ func TestRowsHook(t *testing.T) {
 	}
 }
 
+// TestVirtualTally checks that a Virtual's own tally (Virtual.Tally: the
+// rows added by each worker's source in its walk of the block's rings)
+// encodes byte for byte as NullTally's row hook, on TestRowsHook's
+// families, with 1 and 3 workers, over the whole grid and over row ranges
+// that cut blocks (the sums of the ranges added up), and on a layout
+// without a floor (every cell computed; the tally then goes through the
+// hook).
+func TestVirtualTally(t *testing.T) {
+	g, v, _, chained := nullSetup(t)
+	chained.Chains = map[string][]int{"west-in-all": {1, 0}}
+	mask := make([]uint64, g.Cells())
+	for i := range mask {
+		if i%97 != 0 {
+			mask[i] = 3
+			if i%g.Width < g.Width/3 {
+				mask[i] |= 4
+			}
+		}
+	}
+	twins := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
+	floored, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain, err := metrics.NewLayout([]float64{-1e4}, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cut := g.Height/3 + 5 // inside a block row
+	for name, fam := range map[string]*extent.Family{"chained": chained, "twins": twins} {
+		for lname, layout := range map[string]*metrics.Layout{"floored": floored, "plain": plain} {
+			var want nullmodel.Background
+			if _, _, err := v.Score(g, fam, layout, Options{Workers: 2, Rows: NullTally(fam, &want)}); err != nil {
+				t.Fatal(err)
+			}
+			for _, workers := range []int{1, 3} {
+				for _, ranges := range [][]RowRange{{{0, g.Height}}, {{0, cut}, {cut, g.Height}}} {
+					var parts []*nullmodel.Background
+					for _, rr := range ranges {
+						var bg nullmodel.Background
+						own := NewVirtual(g, v.field)
+						own.Tally(fam, &bg)
+						if _, _, err := own.Score(g, fam, layout, Options{Workers: workers, RowRange: &rr}); err != nil {
+							t.Fatal(err)
+						}
+						parts = append(parts, &bg)
+					}
+					got := parts[0]
+					if len(parts) > 1 {
+						got = new(nullmodel.Background)
+						for _, p := range parts {
+							if err := got.Merge(p); err != nil {
+								t.Fatal(err)
+							}
+						}
+					}
+					if !bytes.Equal(nullmodel.EncodeBackground(got), nullmodel.EncodeBackground(&want)) {
+						t.Errorf("%s, %s layout, %d workers, ranges %v: the source's tally differs from the row hook's", name, lname, workers, ranges)
+					}
+				}
+			}
+		}
+	}
+}
+
 // BenchmarkNullPass measures a whole pass of the distance-only null (the
 // field's bounds computed on the workers, then the same scoring as a
 // raster, and a sorting-bias tally on the rows as the run keeps) on the
@@ -297,7 +362,9 @@ func BenchmarkNullPass(b *testing.B) {
 				b.ReportAllocs()
 				for b.Loop() {
 					var bg nullmodel.Background
-					if _, _, err := v.Score(g, fam, layout, Options{Workers: workers, Rows: NullTally(fam, &bg)}); err != nil {
+					vt := NewVirtual(g, v.field)
+					vt.Tally(fam, &bg)
+					if _, _, err := vt.Score(g, fam, layout, Options{Workers: workers}); err != nil {
 						b.Fatal(err)
 					}
 				}

@@ -42,9 +42,10 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	g := s.grid
 	field := pass.DistanceNull(g, ix)
 	dn := &distanceNull{ix: ix}
-	// The sorting-bias tally of every ok member, on the pass's rows.
-	rows := pass.NullTally(s.fam, &dn.bg)
-	p := &Plan{Index: i, Model: s.Passes()[i], src: pass.NewVirtual(g, field), rows: rows, null: dn}
+	// The sorting-bias tally of every ok member, made by the pass.
+	src := pass.NewVirtual(g, field)
+	src.Tally(s.fam, &dn.bg)
+	p := &Plan{Index: i, Model: s.Passes()[i], src: src, null: dn}
 	// The null's fine histogram (Boyce) never goes below the floor grid of
 	// about far/histBins, so the bounds of a cell can be checked against
 	// every histogram edge before the pass (pass.DistanceNullFloor).
