@@ -42,3 +42,25 @@ func processCPU() time.Duration {
 	}
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
+
+// BenchmarkEncodeStudy times Results.Encode (results.json's bytes) on the
+// results.json named by AREASWEEP_BENCH_RESULTS (skipped otherwise), with
+// cpu-ns/op as in BenchmarkWriteStudy.
+func BenchmarkEncodeStudy(b *testing.B) {
+	path := os.Getenv("AREASWEEP_BENCH_RESULTS")
+	if path == "" {
+		b.Skip("set AREASWEEP_BENCH_RESULTS to a results.json")
+	}
+	r, err := Load(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	c0 := processCPU()
+	for b.Loop() {
+		if _, err := r.Encode(); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(processCPU()-c0)/float64(b.N), "cpu-ns/op")
+}
