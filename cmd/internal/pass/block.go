@@ -57,8 +57,9 @@ type edge struct{ x, k int32 }
 // with the same targets share them), and the members of signature i are
 // sigMem[sigOff[i]:sigOff[i+1]] (ascending).
 type band struct {
-	once     sync.Once
-	left     atomic.Int32 // blocks of the band not yet scored
+	claimed  atomic.Bool   // a worker plans it
+	ready    chan struct{} // closed once planned
+	left     atomic.Int32  // blocks of the band not yet scored
 	segs     []segment
 	sRow     []int32
 	sigIndex map[string]int32
@@ -70,28 +71,32 @@ type band struct {
 func (bd *band) members(id int32) []int32 { return bd.sigMem[bd.sigOff[id]:bd.sigOff[id+1]] }
 
 // bands are the bands of one pass: the first worker to reach a block row
-// plans it (the others wait for it), the last one done with its blocks
-// retires it, for its buffers to plan a later block row.
+// plans it, the last one done with its blocks retires it, for its buffers
+// to plan a later block row. A worker that finds its band being planned
+// by another plans the next one meanwhile instead of waiting idle, so at
+// most one band beyond those being scored is held.
 type bands struct {
-	fam    *extent.Family
-	groups [][]int
-	width  int
-	nx     int // blocks per block row
+	fam          *extent.Family
+	groups       [][]int
+	width, nx    int // grid columns, blocks per block row
+	blockH, last int // rows per block row, the last block row of the pass
+	rows         RowRange
 
 	mu   sync.Mutex
 	live map[int]*band // by block row
 	free []*band
 }
 
-func newBands(fam *extent.Family, groups [][]int, width, nx int) *bands {
-	return &bands{fam: fam, groups: groups, width: width, nx: nx, live: make(map[int]*band)}
+func newBands(fam *extent.Family, groups [][]int, width, nx, blockH int, rows RowRange) *bands {
+	return &bands{fam: fam, groups: groups, width: width, nx: nx, blockH: blockH,
+		last: (rows.End - 1) / blockH, rows: rows, live: make(map[int]*band)}
 }
 
-// get returns block row by's band, planned for rows y0 <= row < y0+h
-// (the same for every block of the block row), with ws's scratch if this
-// worker plans it.
-func (bs *bands) get(by, y0, h int, ws *workerState) *band {
+// band returns block row by's band, new and not yet planned if no worker
+// asked for it before.
+func (bs *bands) band(by int) *band {
 	bs.mu.Lock()
+	defer bs.mu.Unlock()
 	bd := bs.live[by]
 	if bd == nil {
 		if n := len(bs.free); n > 0 {
@@ -99,12 +104,41 @@ func (bs *bands) get(by, y0, h int, ws *workerState) *band {
 		} else {
 			bd = &band{sigIndex: make(map[string]int32)}
 		}
-		bd.once = sync.Once{}
+		bd.claimed.Store(false)
+		bd.ready = make(chan struct{})
 		bd.left.Store(int32(bs.nx))
 		bs.live[by] = bd
 	}
-	bs.mu.Unlock()
-	bd.once.Do(func() { ws.planBand(bd, bs.fam, bs.groups, y0, h, bs.width) })
+	return bd
+}
+
+// plan plans bd, block row by, with ws's scratch unless another worker
+// does; it reports whether it did.
+func (bs *bands) plan(by int, bd *band, ws *workerState) bool {
+	if !bd.claimed.CompareAndSwap(false, true) {
+		return false
+	}
+	// Closed even if planning panics, so that no worker waits forever (the
+	// pass then fails with an InternalError).
+	defer close(bd.ready)
+	y0, y1 := max(by*bs.blockH, bs.rows.First), min((by+1)*bs.blockH, bs.rows.End)
+	ws.planBand(bd, bs.fam, bs.groups, y0, y1-y0, bs.width)
+	return true
+}
+
+// get returns block row by's band, planned.
+func (bs *bands) get(by int, ws *workerState) *band {
+	bd := bs.band(by)
+	if !bs.plan(by, bd, ws) {
+		select {
+		case <-bd.ready:
+		default:
+			if by < bs.last {
+				bs.plan(by+1, bs.band(by+1), ws)
+			}
+			<-bd.ready
+		}
+	}
 	return bd
 }
 

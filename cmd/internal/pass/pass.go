@@ -460,7 +460,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	var next atomic.Int64
 	var failed atomic.Bool
 	var wg sync.WaitGroup
-	bands := newBands(fam, groups, p.width, nx)
+	bands := newBands(fam, groups, p.width, nx, p.blockH, rows)
 	for w := 0; w < workers; w++ {
 		accs := make([]*metrics.Accumulator, n)
 		for k := range accs {
@@ -515,7 +515,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 					st.AnyValid = slices.ContainsFunc(b.buf, valid)
 				}
 				by := i / nx
-				bd := bands.get(by, b.y0, b.h, ws)
+				bd := bands.get(by, ws)
 				if err := scoreBlock(g, bd, layout, b, pt.accs, &st, ws, opt); err != nil {
 					pt.err = err
 					failed.Store(true)
