@@ -62,7 +62,8 @@ type band struct {
 	left     atomic.Int32  // blocks of the band not yet scored
 	segs     []segment
 	sRow     []int32
-	sigIndex map[string]int32
+	sigHash  map[uint64]int32 // signature by hash (see signature)
+	sigIndex map[string]int32 // signature by members, for hash collisions
 	sigOff   []int32
 	sigMem   []int32
 }
@@ -102,7 +103,7 @@ func (bs *bands) band(by int) *band {
 		if n := len(bs.free); n > 0 {
 			bd, bs.free = bs.free[n-1], bs.free[:n-1]
 		} else {
-			bd = &band{sigIndex: make(map[string]int32)}
+			bd = &band{sigHash: make(map[uint64]int32), sigIndex: make(map[string]int32)}
 		}
 		bd.claimed.Store(false)
 		bd.ready = make(chan struct{})
@@ -167,6 +168,7 @@ type workerState struct {
 	edges                []edge
 	active               []int32
 	key                  []byte
+	hash                 uint64 // of the active members (memberHash)
 	// The last overlay: its edges in order (sorted), perm[j] the index
 	// in generation order of sorted[j], tie[j] whether sorted[j] is at
 	// the column of sorted[j-1], and its segments as runs between
@@ -240,6 +242,7 @@ func (ws *workerState) planBand(bd *band, fam *extent.Family, groups [][]int, y0
 	}
 	bd.segs, bd.sRow = bd.segs[:0], bd.sRow[:0]
 	ws.sorted, ws.perm = ws.sorted[:0], ws.perm[:0] // signatures are the band's
+	clear(bd.sigHash)
 	clear(bd.sigIndex)
 	bd.sigOff, bd.sigMem = append(bd.sigOff[:0], 0), bd.sigMem[:0]
 	for y := 0; y < h; y++ {
@@ -341,7 +344,7 @@ func (ws *workerState) overlay(bd *band, ts []target) {
 		ws.sorted = append(ws.sorted, e)
 	}
 	ws.spans = ws.spans[:0]
-	ws.active = ws.active[:0]
+	ws.active, ws.hash = ws.active[:0], 0
 	es := ws.sorted
 	for i := 0; i < n; {
 		i0 := i
@@ -350,9 +353,11 @@ func (ws *workerState) overlay(bd *band, ts []target) {
 			if k := es[i].k; k >= 0 {
 				j, _ := slices.BinarySearch(ws.active, k)
 				ws.active = slices.Insert(ws.active, j, k)
+				ws.hash ^= memberHash(k)
 			} else {
 				j, _ := slices.BinarySearch(ws.active, -1-k)
 				ws.active = slices.Delete(ws.active, j, j+1)
+				ws.hash ^= memberHash(-1 - k)
 			}
 		}
 		if i < n && len(ws.active) > 0 {
@@ -363,20 +368,42 @@ func (ws *workerState) overlay(bd *band, ts []target) {
 	}
 }
 
+// memberHash is member k's term of a signature's hash: the XOR of its
+// members' terms (kept up to date as members enter and leave the active
+// set), a splitmix64 mix of k.
+func memberHash(k int32) uint64 {
+	z := uint64(k) + 0x9e3779b97f4a7c15
+	z = (z ^ z>>30) * 0xbf58476d1ce4e5b9
+	z = (z ^ z>>27) * 0x94d049bb133111eb
+	return z ^ z>>31
+}
+
 // signature returns the id in bd of the active members' signature, added
-// if new.
+// if new. Signatures are found by their hash (ws.hash); the first one of
+// each hash owns it, and a different set with the same hash (a collision)
+// is looked up by its members instead.
 func (ws *workerState) signature(bd *band) int32 {
-	ws.key = ws.key[:0]
-	for _, k := range ws.active {
-		ws.key = append(ws.key, byte(k), byte(k>>8))
+	id, ok := bd.sigHash[ws.hash]
+	if ok && slices.Equal(bd.members(id), ws.active) {
+		return id
 	}
-	id, ok := bd.sigIndex[string(ws.key)]
-	if !ok {
-		id = int32(len(bd.sigOff) - 1)
+	if ok {
+		ws.key = ws.key[:0]
+		for _, k := range ws.active {
+			ws.key = append(ws.key, byte(k), byte(k>>8))
+		}
+		if id, ok := bd.sigIndex[string(ws.key)]; ok {
+			return id
+		}
+	}
+	id = int32(len(bd.sigOff) - 1)
+	if ok {
 		bd.sigIndex[string(ws.key)] = id
-		bd.sigMem = append(bd.sigMem, ws.active...)
-		bd.sigOff = append(bd.sigOff, int32(len(bd.sigMem)))
+	} else {
+		bd.sigHash[ws.hash] = id
 	}
+	bd.sigMem = append(bd.sigMem, ws.active...)
+	bd.sigOff = append(bd.sigOff, int32(len(bd.sigMem)))
 	return id
 }
 
