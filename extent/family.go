@@ -153,9 +153,10 @@ func (f *Family) Span(k, inner, row, c0, c1 int, s *SpanScratch) []int32 {
 // nested and listed from smallest to largest (a sequence of Groups), with
 // the cells of k in row and columns [c0,c1) minus those of the member
 // before it in seq: Span(k, previous, ...) for each, but each member's row
-// is clipped once, and none when the largest member has no cell there
-// (every runs is then empty). runs lives in s and is valid during the
-// call only.
+// is clipped once, none when the largest member has no cell there (every
+// runs is then empty), and none after the first member that holds the
+// whole window (the larger ones hold it too: their runs are empty). runs
+// lives in s and is valid during the call only.
 func (f *Family) Rings(seq []int, row, c0, c1 int, s *SpanScratch, emit func(k int, runs []int32)) {
 	outer := seq[len(seq)-1]
 	s.c = clipWindow(s.c[:0], f.cells[outer].rows[row], int32(c0), int32(c1))
@@ -166,7 +167,7 @@ func (f *Family) Rings(seq []int, row, c0, c1 int, s *SpanScratch, emit func(k i
 		return
 	}
 	prev := s.a[:0]
-	for _, k := range seq {
+	for i, k := range seq {
 		cur := s.c
 		if k != outer {
 			cur = clipWindow(s.b[:0], f.cells[k].rows[row], int32(c0), int32(c1))
@@ -177,12 +178,20 @@ func (f *Family) Rings(seq []int, row, c0, c1 int, s *SpanScratch, emit func(k i
 			ring = s.out
 		}
 		emit(k, ring)
-		if k != outer {
-			// k's runs are the next member's inner ones; the buffer of
-			// the previous ones takes the next clip.
-			s.a, s.b = cur, prev[:0]
-			prev = cur
+		if k == outer {
+			return
 		}
+		if len(cur) == 2 && cur[0] == int32(c0) && cur[1] == int32(c1) {
+			// k holds the whole window, and so does every larger member.
+			for _, k := range seq[i+1:] {
+				emit(k, nil)
+			}
+			return
+		}
+		// k's runs are the next member's inner ones; the buffer of the
+		// previous ones takes the next clip.
+		s.a, s.b = cur, prev[:0]
+		prev = cur
 	}
 }
 

@@ -191,7 +191,8 @@ func TestRepeatAdd(t *testing.T) {
 // TestRingsMatchSpan checks Family.Rings against Span(k, previous member)
 // for every member of a nested sequence, on random nested members (each
 // row's runs of member k+1 hold those of k, with rows where the largest
-// member is empty) and random column windows, reusing one scratch.
+// member is empty) and random column windows, some inside a run of a
+// member, reusing one scratch.
 func TestRingsMatchSpan(t *testing.T) {
 	g, err := NewGrid(200, 40, [6]float64{0, 0.01, 0, 1, 0, -0.01}, "EPSG:4326")
 	if err != nil {
@@ -235,9 +236,16 @@ func TestRingsMatchSpan(t *testing.T) {
 	}
 	var s, ref SpanScratch
 	for row := range g.Height {
-		for range 20 {
+		for i := range 30 {
 			c0 := rng.IntN(200)
 			c1 := c0 + 1 + rng.IntN(200-c0)
+			if r := f.Runs(rng.IntN(members), row); i >= 20 && len(r) > 0 {
+				// A window inside a run of some member: every larger
+				// member holds all of it.
+				j := 2 * rng.IntN(len(r)/2)
+				c0 = int(r[j]) + rng.IntN(int(r[j+1]-r[j]))
+				c1 = c0 + 1 + rng.IntN(int(r[j+1])-c0)
+			}
 			next := 0
 			f.Rings(seq, row, c0, c1, &s, func(k int, runs []int32) {
 				if k != seq[next] {

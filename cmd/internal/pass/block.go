@@ -3,17 +3,29 @@ package pass
 import (
 	"fmt"
 	"slices"
+	"sync"
+	"sync/atomic"
 
 	"areasweep/extent"
 	"areasweep/metrics"
 )
 
-// A block is scored in two steps. planBlock finds, row by row, where each
-// cell goes: for each group (nested sequence of members) the runs of its
-// smallest member holding the cells (targets), and their overlay, the
-// segments, runs of cells that go to one same set of members (their
-// signature). scoreBlock then locates every cell once and adds each run to
-// its accumulators.
+// A block is scored in two steps. Its plan says, row by row, where each
+// cell goes: the segments, runs of cells that go to one same set of
+// members (their signature), the overlay of each group's (nested sequence
+// of members) rings, the runs where each member is the smallest of its
+// group holding the cells. scoreBlock then locates every cell once and
+// adds each segment to its accumulators.
+//
+// Every block of a block row (the blocks that share grid rows) needs the
+// same rows of the family, so the rows are planned once per block row and
+// pass, over the whole width of the grid (a band: Family.Rings once per
+// group and row, one overlay per row), and each block takes its columns
+// of the band's segments (a binary search and the segments inside the
+// block): the cost of a block follows the boundaries inside it, not the
+// number of members. A band lives while its blocks are scored: memory is
+// one block row's runs per block row in flight (at most a few, since
+// workers take blocks in order), never the whole raster.
 //
 // When many cells of the block share a signature of several members (a
 // block inside several large extents: the common case), they are added
@@ -27,17 +39,120 @@ import (
 // one block, and so keeps in memory beside its accumulator per member.
 const MaxShared = 4
 
-// target is a run of cells of one block row whose smallest member in its
-// group is k; columns are relative to the block.
+// target is a run of cells of one row whose smallest member in its group
+// is k; columns are the grid's.
 type target struct{ x0, x1, k int32 }
 
-// segment is a run of cells of one block row that go to the members of
-// signature sig; columns are relative to the block.
+// segment is a run of cells of one row that go to the members of
+// signature sig: in a band, columns are the grid's and sig the band's;
+// in a block's plan, columns are relative to the block.
 type segment struct{ x0, x1, sig int32 }
 
 // edge is where a target starts (k >= 0: member k) or ends (k < 0:
 // member -1-k) in a row.
 type edge struct{ x, k int32 }
+
+// band is the plan of one block row over the whole width of the grid:
+// row y's segments are segs[sRow[2y]:sRow[2y+1]] (sorted, disjoint; rows
+// with the same targets share them), and the members of signature i are
+// sigMem[sigOff[i]:sigOff[i+1]] (ascending).
+type band struct {
+	claimed  atomic.Bool   // a worker plans it
+	ready    chan struct{} // closed once planned
+	left     atomic.Int32  // blocks of the band not yet scored
+	segs     []segment
+	sRow     []int32
+	sigHash  map[uint64]int32 // signature by hash (see signature)
+	sigIndex map[string]int32 // signature by members, for hash collisions
+	sigOff   []int32
+	sigMem   []int32
+}
+
+// members returns the members of signature id.
+func (bd *band) members(id int32) []int32 { return bd.sigMem[bd.sigOff[id]:bd.sigOff[id+1]] }
+
+// bands are the bands of one pass: the first worker to reach a block row
+// plans it, the last one done with its blocks retires it, for its buffers
+// to plan a later block row. A worker that finds its band being planned
+// by another plans the next one meanwhile instead of waiting idle, so at
+// most one band beyond those being scored is held.
+type bands struct {
+	fam          *extent.Family
+	groups       [][]int
+	width, nx    int // grid columns, blocks per block row
+	blockH, last int // rows per block row, the last block row of the pass
+	rows         RowRange
+
+	mu   sync.Mutex
+	live map[int]*band // by block row
+	free []*band
+}
+
+func newBands(fam *extent.Family, groups [][]int, width, nx, blockH int, rows RowRange) *bands {
+	return &bands{fam: fam, groups: groups, width: width, nx: nx, blockH: blockH,
+		last: (rows.End - 1) / blockH, rows: rows, live: make(map[int]*band)}
+}
+
+// band returns block row by's band, new and not yet planned if no worker
+// asked for it before.
+func (bs *bands) band(by int) *band {
+	bs.mu.Lock()
+	defer bs.mu.Unlock()
+	bd := bs.live[by]
+	if bd == nil {
+		if n := len(bs.free); n > 0 {
+			bd, bs.free = bs.free[n-1], bs.free[:n-1]
+		} else {
+			bd = &band{sigHash: make(map[uint64]int32), sigIndex: make(map[string]int32)}
+		}
+		bd.claimed.Store(false)
+		bd.ready = make(chan struct{})
+		bd.left.Store(int32(bs.nx))
+		bs.live[by] = bd
+	}
+	return bd
+}
+
+// plan plans bd, block row by, with ws's scratch unless another worker
+// does; it reports whether it did.
+func (bs *bands) plan(by int, bd *band, ws *workerState) bool {
+	if !bd.claimed.CompareAndSwap(false, true) {
+		return false
+	}
+	// Closed even if planning panics, so that no worker waits forever (the
+	// pass then fails with an InternalError).
+	defer close(bd.ready)
+	y0, y1 := max(by*bs.blockH, bs.rows.First), min((by+1)*bs.blockH, bs.rows.End)
+	ws.planBand(bd, bs.fam, bs.groups, y0, y1-y0, bs.width)
+	return true
+}
+
+// get returns block row by's band, planned.
+func (bs *bands) get(by int, ws *workerState) *band {
+	bd := bs.band(by)
+	if !bs.plan(by, bd, ws) {
+		select {
+		case <-bd.ready:
+		default:
+			if by < bs.last {
+				bs.plan(by+1, bs.band(by+1), ws)
+			}
+			<-bd.ready
+		}
+	}
+	return bd
+}
+
+// done says that one block of block row by is scored.
+func (bs *bands) done(by int, bd *band) {
+	if bd.left.Add(-1) > 0 {
+		return
+	}
+	bs.mu.Lock()
+	delete(bs.live, by)
+	bs.free = append(bs.free, bd)
+	bs.mu.Unlock()
+}
 
 // workerState is one worker's scratch for scoring blocks.
 type workerState struct {
@@ -46,29 +161,35 @@ type workerState struct {
 	weights []int64
 	bins    []int32 // per column of the block row: layout bin, -1 when not scored
 	span    extent.SpanScratch
-	x0      int32              // the planned block's first column
 	emit    func(int, []int32) // addTargets, bound once
 
-	// The block's plan: row y's targets are targets[tRow[y]:tRow[y+1]],
-	// its segments segs[sRow[y]:sRow[y+1]] (sorted, disjoint).
-	targets []target
-	tRow    []int
-	segs    []segment
-	sRow    []int
-	// Signatures: the members of signature i are sigMem[sigOff[i]:sigOff[i+1]]
-	// (ascending), sigCells[i] its cells in the block, sigAcc[i] its shared
-	// accumulator or nil.
-	sigIndex map[string]int32
-	sigOff   []int32
-	sigMem   []int32
+	// Planning a band: the targets of the row and of the row before.
+	targets, prevTargets []target
+	edges                []edge
+	active               []int32
+	key                  []byte
+	hash                 uint64 // of the active members (memberHash)
+	// The last overlay: its edges in order (sorted), perm[j] the index
+	// in generation order of sorted[j], tie[j] whether sorted[j] is at
+	// the column of sorted[j-1], and its segments as runs between
+	// edges: spans[i] = {j0, j1, sig} for the segment from sorted[j0].x to
+	// sorted[j1].x. Valid for the band being planned only.
+	sorted []edge
+	keys   []uint64
+	perm   []int32
+	tie    []bool
+	spans  []segment
+
+	// The block's plan: row y's segments are segs[sRow[y]:sRow[y+1]]
+	// (sorted, disjoint), signatures are band's, sigCells[i] the cells of
+	// signature i in the block, sigAcc[i] its shared accumulator or nil.
+	band     *band
+	segs     []segment
+	sRow     []int
 	sigCells []int64
 	sigAcc   []*metrics.Shared
 	free     []*metrics.Shared // not in use, empty
 	dst      []*metrics.Accumulator
-
-	edges  []edge
-	active []int32
-	key    []byte
 
 	// rowW[row] is 1 + the weight of every cell of row on grids whose
 	// rows have one cell area (latitude-longitude and equal-area), 0 until
@@ -110,121 +231,225 @@ func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) ([]int64, int
 
 func newWorkerState(bw, bh int) *workerState {
 	return &workerState{buf: make([]float64, bw*bh), weights: make([]int64, bw),
-		bins: make([]int32, bw), sigIndex: make(map[string]int32), filled: -1}
+		bins: make([]int32, bw), filled: -1}
 }
 
-// planBlock fills the block's targets, segments and signatures.
-func (ws *workerState) planBlock(fam *extent.Family, groups [][]int, b block) {
-	x1 := b.x0 + b.w
-	ws.x0 = int32(b.x0)
+// planBand fills bd with the segments and signatures of rows y0 <= row <
+// y0+h over the grid's width.
+func (ws *workerState) planBand(bd *band, fam *extent.Family, groups [][]int, y0, h, width int) {
 	if ws.emit == nil {
 		ws.emit = ws.addTargets
 	}
-	ws.targets, ws.segs = ws.targets[:0], ws.segs[:0]
-	ws.tRow, ws.sRow = append(ws.tRow[:0], 0), append(ws.sRow[:0], 0)
-	clear(ws.sigIndex)
-	ws.sigOff, ws.sigMem, ws.sigCells = append(ws.sigOff[:0], 0), ws.sigMem[:0], ws.sigCells[:0]
-	prev := 0 // first target of the previous row
-	for y := 0; y < b.h; y++ {
-		row := b.y0 + y
-		t0 := len(ws.targets)
+	bd.segs, bd.sRow = bd.segs[:0], bd.sRow[:0]
+	ws.sorted, ws.perm = ws.sorted[:0], ws.perm[:0] // signatures are the band's
+	clear(bd.sigHash)
+	clear(bd.sigIndex)
+	bd.sigOff, bd.sigMem = append(bd.sigOff[:0], 0), bd.sigMem[:0]
+	for y := 0; y < h; y++ {
+		ws.prevTargets, ws.targets = ws.targets, ws.prevTargets[:0]
 		for _, seq := range groups {
-			fam.Rings(seq, row, b.x0, x1, &ws.span, ws.emit)
+			fam.Rings(seq, y0+y, 0, width, &ws.span, ws.emit)
 		}
-		ts := ws.targets[t0:]
-		if y > 0 && slices.Equal(ts, ws.targets[prev:t0]) {
-			// Same targets as the row above (the inside of most blocks):
-			// same segments.
-			for _, s := range ws.segs[ws.sRow[y-1]:ws.sRow[y]] {
-				ws.segs = append(ws.segs, s)
-				ws.sigCells[s.sig] += int64(s.x1 - s.x0)
-			}
-		} else {
-			ws.overlay(ts)
+		if y > 0 && slices.Equal(ws.targets, ws.prevTargets) {
+			// Same targets as the row above: same segments.
+			bd.sRow = append(bd.sRow, bd.sRow[2*y-2], bd.sRow[2*y-1])
+			continue
 		}
-		prev = t0
-		ws.tRow = append(ws.tRow, len(ws.targets))
-		ws.sRow = append(ws.sRow, len(ws.segs))
+		s0 := int32(len(bd.segs))
+		ws.overlay(bd, ws.targets)
+		bd.sRow = append(bd.sRow, s0, int32(len(bd.segs)))
 	}
 }
 
-// addTargets appends member k's runs, in block columns, to the row's
-// targets (the emit of Family.Rings, bound once as a method value).
+// addTargets appends member k's runs to the row's targets (the emit of
+// Family.Rings, bound once as a method value).
 func (ws *workerState) addTargets(k int, runs []int32) {
-	x0 := ws.x0
 	for i := 0; i < len(runs); i += 2 {
-		ws.targets = append(ws.targets, target{runs[i] - x0, runs[i+1] - x0, int32(k)})
+		ws.targets = append(ws.targets, target{runs[i], runs[i+1], int32(k)})
 	}
 }
 
-// overlay appends the segments of one row's targets.
-func (ws *workerState) overlay(ts []target) {
+// overlay appends the segments of one row's targets to bd: the runs
+// between consecutive edges (starts and ends of targets, sorted by column)
+// where some member is active, each with the signature of the active
+// members. Consecutive rows mostly differ in where their edges are, not in
+// their order: when the previous row's order of the edges, applied to
+// this row's, is sorted and gives the same members in the same order and
+// the same ties, the sweep would find the same signatures between the
+// same edges, so only the columns are taken anew (no sort, no lookup).
+func (ws *workerState) overlay(bd *band, ts []target) {
 	if len(ts) == 0 {
-		return
-	}
-	same := true
-	for _, t := range ts[1:] {
-		same = same && t.x0 == ts[0].x0 && t.x1 == ts[0].x1
-	}
-	if same {
-		ws.active = ws.active[:0]
-		for _, t := range ts {
-			ws.active = append(ws.active, t.k)
-		}
-		slices.Sort(ws.active)
-		ws.segment(ts[0].x0, ts[0].x1)
+		ws.sorted = ws.sorted[:0]
 		return
 	}
 	ws.edges = ws.edges[:0]
 	for _, t := range ts {
 		ws.edges = append(ws.edges, edge{t.x0, t.k}, edge{t.x1, -1 - t.k})
 	}
-	// Ends before starts at the same column, so that a member never
-	// appears twice in the active set.
-	slices.SortFunc(ws.edges, func(a, b edge) int {
-		if a.x != b.x {
-			return int(a.x - b.x)
+	n := len(ws.edges)
+	if n == len(ws.sorted) && n == len(ws.perm) {
+		prev, ok := ws.sorted, true
+		for j, i := range ws.perm {
+			e := ws.edges[i]
+			if e.k != prev[j].k || j > 0 && (e.x < prev[j-1].x || (e.x == prev[j-1].x) != ws.tie[j]) {
+				ok = false
+				break
+			}
+			prev[j].x = e.x // prev[:j] is this row's order now
 		}
-		return int(a.k - b.k)
-	})
-	ws.active = ws.active[:0]
-	for i := 0; i < len(ws.edges); {
-		x := ws.edges[i].x
-		for ; i < len(ws.edges) && ws.edges[i].x == x; i++ {
-			if k := ws.edges[i].k; k >= 0 {
+		if ok {
+			for _, sp := range ws.spans {
+				bd.segs = append(bd.segs, segment{prev[sp.x0].x, prev[sp.x1].x, sp.sig})
+			}
+			return
+		}
+	}
+	// The edges' order: ends before starts at the same column, so that a
+	// member never appears twice in the active set.
+	ws.perm = ws.perm[:0]
+	if n < 1<<28 {
+		// Sorted as integers x<<40 | (k+2048)<<28 | i, for columns below
+		// 2^24 (k+2048 is in [1024, 3072) since -MaxMembers <= k <
+		// MaxMembers): by column, then member (ends first); i, the edge's
+		// index, rides along.
+		ws.keys = ws.keys[:0]
+		for i, e := range ws.edges {
+			if e.x >= 1<<24 {
+				ws.keys = ws.keys[:0]
+				break
+			}
+			ws.keys = append(ws.keys, uint64(e.x)<<40|uint64(e.k+2048)<<28|uint64(i))
+		}
+		slices.Sort(ws.keys)
+		for _, key := range ws.keys {
+			ws.perm = append(ws.perm, int32(key&(1<<28-1)))
+		}
+	}
+	if len(ws.perm) == 0 {
+		for i := range n {
+			ws.perm = append(ws.perm, int32(i))
+		}
+		slices.SortFunc(ws.perm, func(a, b int32) int {
+			ea, eb := ws.edges[a], ws.edges[b]
+			if ea.x != eb.x {
+				return int(ea.x - eb.x)
+			}
+			return int(ea.k - eb.k)
+		})
+	}
+	ws.sorted, ws.tie = ws.sorted[:0], ws.tie[:0]
+	for j, i := range ws.perm {
+		e := ws.edges[i]
+		ws.tie = append(ws.tie, j > 0 && e.x == ws.sorted[j-1].x)
+		ws.sorted = append(ws.sorted, e)
+	}
+	ws.spans = ws.spans[:0]
+	ws.active, ws.hash = ws.active[:0], 0
+	es := ws.sorted
+	for i := 0; i < n; {
+		i0 := i
+		x := es[i].x
+		for ; i < n && es[i].x == x; i++ {
+			if k := es[i].k; k >= 0 {
 				j, _ := slices.BinarySearch(ws.active, k)
 				ws.active = slices.Insert(ws.active, j, k)
+				ws.hash ^= memberHash(k)
 			} else {
 				j, _ := slices.BinarySearch(ws.active, -1-k)
 				ws.active = slices.Delete(ws.active, j, j+1)
+				ws.hash ^= memberHash(-1 - k)
 			}
 		}
-		if i < len(ws.edges) && len(ws.active) > 0 && ws.edges[i].x > x {
-			ws.segment(x, ws.edges[i].x)
+		if i < n && len(ws.active) > 0 {
+			sig := ws.signature(bd)
+			bd.segs = append(bd.segs, segment{x, es[i].x, sig})
+			ws.spans = append(ws.spans, segment{int32(i0), int32(i), sig})
 		}
 	}
 }
 
-// segment appends the segment [x0, x1) of the active members' signature.
-func (ws *workerState) segment(x0, x1 int32) {
-	ws.key = ws.key[:0]
-	for _, k := range ws.active {
-		ws.key = append(ws.key, byte(k), byte(k>>8))
+// memberHash is member k's term of a signature's hash: the XOR of its
+// members' terms (kept up to date as members enter and leave the active
+// set), a splitmix64 mix of k.
+func memberHash(k int32) uint64 {
+	z := uint64(k) + 0x9e3779b97f4a7c15
+	z = (z ^ z>>30) * 0xbf58476d1ce4e5b9
+	z = (z ^ z>>27) * 0x94d049bb133111eb
+	return z ^ z>>31
+}
+
+// signature returns the id in bd of the active members' signature, added
+// if new. Signatures are found by their hash (ws.hash); the first one of
+// each hash owns it, and a different set with the same hash (a collision)
+// is looked up by its members instead.
+func (ws *workerState) signature(bd *band) int32 {
+	id, ok := bd.sigHash[ws.hash]
+	if ok && slices.Equal(bd.members(id), ws.active) {
+		return id
 	}
-	id, ok := ws.sigIndex[string(ws.key)]
-	if !ok {
-		id = int32(len(ws.sigCells))
-		ws.sigIndex[string(ws.key)] = id
-		ws.sigMem = append(ws.sigMem, ws.active...)
-		ws.sigOff = append(ws.sigOff, int32(len(ws.sigMem)))
-		ws.sigCells = append(ws.sigCells, 0)
+	if ok {
+		ws.key = ws.key[:0]
+		for _, k := range ws.active {
+			ws.key = append(ws.key, byte(k), byte(k>>8))
+		}
+		if id, ok := bd.sigIndex[string(ws.key)]; ok {
+			return id
+		}
 	}
-	ws.segs = append(ws.segs, segment{x0, x1, id})
-	ws.sigCells[id] += int64(x1 - x0)
+	id = int32(len(bd.sigOff) - 1)
+	if ok {
+		bd.sigIndex[string(ws.key)] = id
+	} else {
+		bd.sigHash[ws.hash] = id
+	}
+	bd.sigMem = append(bd.sigMem, ws.active...)
+	bd.sigOff = append(bd.sigOff, int32(len(bd.sigMem)))
+	return id
+}
+
+// planBlock fills the block's plan from its band: each row's segments
+// inside the block's columns, and the cells of each signature.
+func (ws *workerState) planBlock(bd *band, b block) {
+	ws.band = bd
+	x0, x1 := int32(b.x0), int32(b.x0+b.w)
+	ws.segs, ws.sRow = ws.segs[:0], append(ws.sRow[:0], 0)
+	nsig := len(bd.sigOff) - 1
+	if cap(ws.sigCells) < nsig {
+		ws.sigCells = make([]int64, nsig)
+	}
+	ws.sigCells = ws.sigCells[:nsig]
+	clear(ws.sigCells)
+	for y := 0; y < b.h; y++ {
+		s0, s1 := bd.sRow[2*y], bd.sRow[2*y+1]
+		if y > 0 && s0 == bd.sRow[2*y-2] && s1 == bd.sRow[2*y-1] {
+			// The row above's segments.
+			for _, s := range ws.segs[ws.sRow[y-1]:ws.sRow[y]] {
+				ws.segs = append(ws.segs, s)
+				ws.sigCells[s.sig] += int64(s.x1 - s.x0)
+			}
+		} else {
+			row := bd.segs[s0:s1]
+			i, _ := slices.BinarySearchFunc(row, x0, func(s segment, x int32) int {
+				if s.x1 <= x {
+					return -1
+				}
+				return 1
+			})
+			for _, s := range row[i:] {
+				if s.x0 >= x1 {
+					break
+				}
+				s.x0, s.x1 = max(s.x0, x0)-x0, min(s.x1, x1)-x0
+				ws.segs = append(ws.segs, s)
+				ws.sigCells[s.sig] += int64(s.x1 - s.x0)
+			}
+		}
+		ws.sRow = append(ws.sRow, len(ws.segs))
+	}
 }
 
 // members returns the members of signature id.
-func (ws *workerState) members(id int32) []int32 { return ws.sigMem[ws.sigOff[id]:ws.sigOff[id+1]] }
+func (ws *workerState) members(id int32) []int32 { return ws.band.members(id) }
 
 // share gives a shared accumulator to the signatures (at most MaxShared)
 // where it saves the most additions, if it saves more than it costs: a
@@ -240,6 +465,9 @@ func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator
 	for n := 0; n < MaxShared; n++ {
 		best, saving := -1, int64(0)
 		for id, c := range ws.sigCells {
+			if c == 0 {
+				continue
+			}
 			m := int64(len(ws.members(int32(id))))
 			if s := c*(m-1) - (m+1)*cost; m > 1 && ws.sigAcc[id] == nil && s > saving {
 				best, saving = id, s
@@ -264,8 +492,8 @@ func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator
 
 // scoreBlock adds every valid cell of b (decoded) to the accumulators of
 // the smallest member of each group holding it.
-func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
-	ws.planBlock(fam, groups, b)
+func scoreBlock(g *extent.Grid, bd *band, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
+	ws.planBlock(bd, b)
 	ws.share(layout, accs)
 	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
@@ -296,11 +524,9 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 			opt.Rows(row, b.x0, shown, weights)
 		}
 		vword, vbits := -1, uint64(0)
-		shared := false
 		// The statistics in locals: st is written back once per row.
 		mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 		for _, s := range segs {
-			shared = shared || ws.sigAcc[s.sig] != nil
 			sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
 			n, lo, hi := layout.LocateRow(sv, sb)
 			if n == 0 {
@@ -350,12 +576,6 @@ func scoreBlock(g *extent.Grid, fam *extent.Family, groups [][]int, layout *metr
 		st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
 		if vbits != 0 {
 			validCells.OrAtomic(vword, vbits)
-		}
-		if !shared {
-			for _, t := range ws.targets[ws.tRow[y]:ws.tRow[y+1]] {
-				accs[t.k].AddRow(bins[t.x0:t.x1], vals[t.x0:t.x1], weights[t.x0:t.x1])
-			}
-			continue
 		}
 		for _, s := range segs {
 			if a := ws.sigAcc[s.sig]; a != nil {

@@ -460,6 +460,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	var next atomic.Int64
 	var failed atomic.Bool
 	var wg sync.WaitGroup
+	bands := newBands(fam, groups, p.width, nx, p.blockH, rows)
 	for w := 0; w < workers; w++ {
 		accs := make([]*metrics.Accumulator, n)
 		for k := range accs {
@@ -513,11 +514,14 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 				if !st.AnyValid {
 					st.AnyValid = slices.ContainsFunc(b.buf, valid)
 				}
-				if err := scoreBlock(g, fam, groups, layout, b, pt.accs, &st, ws, opt); err != nil {
+				by := i / nx
+				bd := bands.get(by, ws)
+				if err := scoreBlock(g, bd, layout, b, pt.accs, &st, ws, opt); err != nil {
 					pt.err = err
 					failed.Store(true)
 					break
 				}
+				bands.done(by, bd)
 				doneBlocks <- struct{}{}
 			}
 			pt.stats = st
