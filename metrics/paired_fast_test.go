@@ -215,10 +215,11 @@ func BenchmarkBootSD(b *testing.B) {
 	}
 	d := Draws{N: len(ids), B: 1000, Seed: 1}
 	b.ReportAllocs()
-	b.ResetTimer()
+	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
 		ev.BootSD(d)
 	}
+	stop()
 }
 
 // ranksOf is Ranks without the tie term.
@@ -243,12 +244,9 @@ func BenchmarkAverageRanks(b *testing.B) {
 		ratios = append(ratios, slices.Clone(sc.ratio))
 	}
 	b.ReportAllocs()
-	b.ResetTimer()
-	lockThread()
-	defer unlockThread()
-	cpu0 := threadCPU()
+	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
 		averageRanksInto(ratios[i%len(ratios)], &sc)
 	}
-	b.ReportMetric(float64((threadCPU()-cpu0).Nanoseconds())/float64(b.N), "cpu-ns/op")
+	stop()
 }
