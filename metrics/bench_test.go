@@ -157,12 +157,13 @@ func BenchmarkScore(b *testing.B) {
 				}
 				s := Settings{E: []float64{0.05, 0.1, 0.2}, Iterations: 1000, Seed: 9}
 				b.ReportAllocs()
-				b.ResetTimer()
+				stop := startCPU(b)
 				for i := 0; i < b.N; i++ {
 					if _, err := Score(a, train, test, s); err != nil {
 						b.Fatal(err)
 					}
 				}
+				stop()
 			})
 		}
 	}
@@ -199,12 +200,13 @@ func BenchmarkCompare(b *testing.B) {
 			}
 			d := Draws{N: len(ids), B: 200, Seed: 1}
 			b.ReportAllocs()
-			b.ResetTimer()
+			stop := startCPU(b)
 			for i := 0; i < b.N; i++ {
 				if _, err := Compare(ea, eb, d); err != nil {
 					b.Fatal(err)
 				}
 			}
+			stop()
 		})
 	}
 }
@@ -335,17 +337,30 @@ func BenchmarkPairedRun(b *testing.B) {
 	for _, extents := range []int{20, 60} {
 		b.Run(fmt.Sprintf("extents=%d", extents), func(b *testing.B) {
 			pr := newPairedRun(b, 3, extents, 500)
-			lockThread()
-			defer unlockThread()
 			b.ReportAllocs()
-			b.ResetTimer()
-			cpu0 := threadCPU()
+			stop := startCPU(b)
 			for i := 0; i < b.N; i++ {
 				pr.run(b)
 			}
-			if cpu := threadCPU() - cpu0; cpu > 0 {
-				b.ReportMetric(float64(cpu.Nanoseconds())/float64(b.N), "cpu-ns/op")
-			}
+			stop()
 		})
+	}
+}
+
+// startCPU locks the goroutine to its OS thread and resets the
+// benchmark's timer; the function it returns reports the thread's CPU time
+// since then per operation (cpu-ns/op, immune to time-slicing by other
+// processes on a shared machine) and unlocks the thread.
+func startCPU(b *testing.B) func() {
+	lockThread()
+	b.ResetTimer()
+	cpu0 := threadCPU()
+	return func() {
+		cpu := threadCPU() - cpu0
+		b.StopTimer()
+		unlockThread()
+		if cpu > 0 {
+			b.ReportMetric(float64(cpu.Nanoseconds())/float64(b.N), "cpu-ns/op")
+		}
 	}
 }

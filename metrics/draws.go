@@ -165,6 +165,7 @@ func (rs *resampler) gather(b int, ids []int, dst []int32) {
 func (rs *resampler) groups(b int, ids, group []int, groups []int) int {
 	clear(groups)
 	r := 0
+	group = group[:len(ids)]
 	if rs.tab != nil {
 		row := rs.tab.row(b)
 		for k, id := range ids {

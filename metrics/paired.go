@@ -80,15 +80,19 @@ type Evaluator struct {
 	// are those of groups cut[t] onwards (groups run in descending value).
 	th, cut []int
 	// Boyce: used windows and, per window, the groups whose value it
-	// holds, groups winLo[w] to winHi[w]-1 (the groups run in descending
-	// value and a window is an interval of values).
-	win          []boyceWindow
-	winLo, winHi []int
+	// holds, groups winGroups[w][0] to winGroups[w][1]-1 (the groups run
+	// in descending value and a window is an interval of values).
+	win       []boyceWindow
+	winGroups [][2]int32
 	// The window midpoints' side of the Boyce index's Spearman correlation,
 	// fixed per evaluator: their average ranks centred on their mean, and
 	// the sum of squares, summed in window order as Spearman does.
 	midDev []float64
 	midSS  float64
+	// exactRho: every midDev is a multiple of 1/2 and there are at most
+	// maxExactWindows windows, so the Spearman sums are exact in float64
+	// (boyceRho).
+	exactRho bool
 	// own is the memo of ownResamples: the scores on each resample of
 	// one Draws with all of the evaluator's presences.
 	own ownMemo
@@ -164,6 +168,11 @@ type evalScratch struct {
 	pos, sortedPos   []int32
 	start, bucket    []int32
 	ratio, ranks     []float64
+	// The bucket function of sortPositive: spanLo and spanScale, set once
+	// spanSet.
+	spanSet   bool
+	spanLo    uint64
+	spanScale float64
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -231,17 +240,17 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		e.cut = append(e.cut, cut)
 	}
 	e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
-	e.winLo, e.winHi = make([]int, len(e.win)), make([]int, len(e.win))
+	e.winGroups = make([][2]int32, len(e.win))
 	for w, bw := range e.win {
 		g := 0
 		for g < len(e.p.j) && c.values[e.p.j[g]] > bw.hi {
 			g++
 		}
-		e.winLo[w] = g
+		lo := g
 		for g < len(e.p.j) && c.values[e.p.j[g]] >= bw.lo {
 			g++
 		}
-		e.winHi[w] = g
+		e.winGroups[w] = [2]int32{int32(lo), int32(g)}
 	}
 	mid := make([]float64, len(e.win))
 	for w, bw := range e.win {
@@ -254,6 +263,12 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		dy := r - my
 		e.midDev[w] = dy
 		e.midSS += dy * dy
+	}
+	e.exactRho = len(e.midDev) <= maxExactWindows
+	for _, dy := range e.midDev {
+		if 2*dy != math.Trunc(2*dy) {
+			e.exactRho = false
+		}
 	}
 	return e, nil
 }
@@ -334,10 +349,13 @@ func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch
 		}
 	}
 	// before[g]: the presences of the groups before g.
-	before := resize(sc.before, len(groups)+1)
+	before := grow(sc.before, len(groups)+1)
 	sc.before = before
+	before[0] = 0
+	acc, after := 0, before[1:len(groups)+1]
 	for g, c := range groups {
-		before[g+1] = before[g] + c
+		acc += c
+		after[g] = acc
 	}
 	for t, cut := range e.cut {
 		out.Omission[t] = float64(r-before[cut]) / rf
@@ -345,25 +363,78 @@ func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch
 	if len(e.win) >= 3 {
 		ratio := resize(sc.ratio, len(e.win))
 		sc.ratio = ratio
-		for w, bw := range e.win {
-			run := before[e.winHi[w]] - before[e.winLo[w]]
-			ratio[w] = (float64(run) / rf) / bw.share
+		win := e.win[:len(ratio)]
+		for w, span := range e.winGroups[:len(ratio)] {
+			run := before[span[1]] - before[span[0]]
+			ratio[w] = (float64(run) / rf) / win[w].share
 		}
 		out.Boyce, out.BoyceOK = e.boyceRho(ratio, sc)
 	}
 }
 
+// maxExactWindows is the most Boyce windows for which boyceRho's sums
+// are exact: n^3 < 2^53.
+const maxExactWindows = 200_000
+
 // boyceRho is boyceIndex(ratio, midpoints) with the midpoints' ranks
 // precomputed: the same operations in the same order as Spearman, so the
-// same bits.
+// same bits. When e.exactRho, it adds up the sums in the ratios' order
+// instead of the windows': then every term is exact, so the order does not
+// matter. The ranks are half-integers, their mean (n+1)/2 is exact (the
+// ranks add up to n(n+1)/2 exactly), so each dx is a half-integer of
+// magnitude at most n/2, as each midDev is; each product dx midDev and
+// dx dx is a multiple of 1/4 below n^2/4 in magnitude, and every partial
+// sum a multiple of 1/4 below n^3/4, which float64 holds exactly for n^3 <
+// 2^53.
 func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
-	rx := averageRanksInto(ratio, sc)
-	mx := Mean(rx)
 	var sxy, sxx float64
-	for i, r := range rx {
-		dx := r - mx
-		sxy += dx * e.midDev[i]
-		sxx += dx * dx
+	var zp, sp []int32
+	var sk []uint64
+	ok := false
+	if e.exactRho {
+		zp, sk, sp, ok = sortPositive(ratio, sc)
+	}
+	if ok {
+		n, zeros := len(ratio), len(zp)
+		mx := float64(n+1) / 2
+		if zeros > 0 {
+			dx := float64(zeros-1)/2 + 1 - mx
+			for _, w := range zp {
+				sxy += dx * e.midDev[w]
+				sxx += dx * dx
+			}
+		}
+		// Position i of sk without ties has rank zeros+i+1: dx goes up by
+		// 1 (exactly) from one to the next.
+		m := len(sk)
+		dx := float64(zeros+1) - mx
+		for i := 0; i < m; {
+			if i+1 < m && sk[i+1] == sk[i] { // a tie: positions i to j-1
+				j := i + 2
+				for j < m && sk[j] == sk[i] {
+					j++
+				}
+				dt := float64(zeros+i+zeros+j-1)/2 + 1 - mx
+				for ; i < j; i++ {
+					sxy += dt * e.midDev[sp[i]]
+					sxx += dt * dt
+				}
+				dx = float64(zeros+j+1) - mx
+				continue
+			}
+			sxy += dx * e.midDev[sp[i]]
+			sxx += dx * dx
+			dx++
+			i++
+		}
+	} else {
+		rx := averageRanksInto(ratio, sc)
+		mx := Mean(rx)
+		for i, r := range rx {
+			dx := r - mx
+			sxy += dx * e.midDev[i]
+			sxx += dx * dx
+		}
 	}
 	if !(sxx > 0) || !(e.midSS > 0) {
 		return 0, false
@@ -374,75 +445,121 @@ func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
 
 // averageRanksInto returns the 1-based average ranks of v, as Ranks does
 // (ties share the mean of their positions, computed with the same
-// expression), in sc.ranks, using sc's other slices as scratch. For values
-// >= +0 (the Boyce P/E ratios) it orders their bit patterns, which order as
-// the values do: the zeros (windows without a drawn presence) first, then
-// the positive values by a bucket sort (each value's bucket is a
-// non-decreasing function of its bits, so the buckets are in order) and an
-// insertion sort that puts each bucket in order (a few values each). Any
-// other value falls back to Ranks. The ranks depend only on the values, so
-// they are those of Ranks whatever the sort.
+// expression), in sc.ranks, using sc's other slices as scratch: for values
+// >= +0 (the Boyce P/E ratios) the zeros (windows without a drawn
+// presence) take ranks 1 to zeros and the positive values follow in the
+// order sortPositive puts them in. Any other value falls back to Ranks.
+// The ranks depend only on the values, so they are those of Ranks whatever
+// the sort.
 func averageRanksInto(v []float64, sc *evalScratch) []float64 {
-	n := len(v)
-	ranks := resize(sc.ranks, n)
-	sc.ranks = ranks
-	// The positive values' bits and positions, in the order of v; the
-	// zeros take ranks 1 to zeros.
-	keys, pos := resize(sc.keys, n), resize(sc.pos, n)
-	sc.keys, sc.pos = keys, pos
-	m := 0
-	lo, hi := uint64(math.MaxUint64), uint64(0)
-	for i, x := range v {
-		k := math.Float64bits(x)
-		if k>>63 != 0 || x != x { // negative, -0 or NaN
-			r, _ := Ranks(v)
-			sc.ranks = append(sc.ranks[:0], r...)
-			return sc.ranks
-		}
-		keys[m], pos[m] = k, int32(i)
-		if k != 0 {
-			m++
-			lo, hi = min(lo, k), max(hi, k)
-		}
+	zp, sk, sp, ok := sortPositive(v, sc)
+	if !ok {
+		r, _ := Ranks(v)
+		sc.ranks = append(sc.ranks[:0], r...)
+		return sc.ranks
 	}
-	zeros := n - m
+	ranks := grow(sc.ranks, len(v))
+	sc.ranks = ranks
+	zeros := len(zp)
 	if zeros > 0 {
 		zr := float64(zeros-1)/2 + 1
-		for i, x := range v {
-			if x == 0 {
-				ranks[i] = zr
-			}
+		for _, p := range zp {
+			ranks[p] = zr
 		}
 	}
-	if m == 0 {
-		return ranks
+	m := len(sk)
+	for i := 0; i < m; {
+		k := sk[i]
+		j := i + 1
+		for j < m && sk[j] == k {
+			j++
+		}
+		avg := float64(zeros+i+zeros+j-1)/2 + 1
+		for ; i < j; i++ {
+			ranks[sp[i]] = avg
+		}
 	}
-	// Bucket b of nb holds the keys k with floor((k - lo) (nb-1) / (hi -
-	// lo)) = b, computed in float64 (non-decreasing in k; k - lo < 2^63).
-	nb := 2 * m
-	scale := 0.0
-	if hi > lo {
-		scale = float64(nb-1) / float64(int64(hi-lo))
+	return ranks
+}
+
+// sortPositive orders the values of v, all >= +0 (else ok is false), by
+// their bit patterns, which order as the values do: zp are the positions
+// of the zeros, sk the positive values' bits ascending and sp their
+// positions, all in sc's scratch slices. A bucket sort puts the positive
+// values in order (bucket b of nb holds the bits k with floor((k - lo) s)
+// = b, clamped to [0, nb-1], a non-decreasing function of k, so the
+// buckets are in order) and an insertion sort puts each bucket in order (a
+// few values each). lo and s come from the previous call's values (sc
+// keeps them; the first call looks at its own first): ratios of one
+// evaluator's resamples span much the same range, and a bucket function
+// that fits less well only leaves more to the insertion sort. The order
+// depends only on the values, whatever the buckets.
+func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []int32, ok bool) {
+	n := len(v)
+	nb := max(n, 1)
+	if !sc.spanSet {
+		lo, hi := uint64(math.MaxUint64), uint64(0)
+		for _, x := range v {
+			if k := math.Float64bits(x); k-1 < 0x7ff0000000000000 {
+				lo, hi = min(lo, k), max(hi, k)
+			}
+		}
+		sc.setSpan(lo, hi, nb)
 	}
-	start, bucket := resize(sc.start, nb+1), resize(sc.bucket, m)
-	sc.start, sc.bucket = start, bucket
-	for i, k := range keys[:m] {
-		b := min(int32(float64(int64(k-lo))*scale), int32(nb-1))
-		bucket[i] = b
+	keys, pos, bucket := grow(sc.keys, n), grow(sc.pos, n), grow(sc.bucket, n)
+	start := resize(sc.start, nb+1)
+	sc.keys, sc.pos, sc.bucket, sc.start = keys, pos, bucket, start
+	// The positive values' bits, positions and buckets at the front of
+	// keys, pos and bucket, in the order of v; the zeros' positions at the
+	// back of pos.
+	m, z := 0, n
+	lo, hi := uint64(math.MaxUint64), uint64(0)
+	base, scale, top := sc.spanLo, sc.spanScale, float64(nb-1)
+	for i, x := range v {
+		k := math.Float64bits(x)
+		if k-1 >= 0x7ff0000000000000 { // +0 (k-1 wraps), negative, -0 or NaN
+			if k != 0 {
+				return nil, nil, nil, false
+			}
+			z--
+			pos[z] = int32(i)
+			continue
+		}
+		f := float64(int64(k-base)) * scale
+		b := int32(0)
+		if f >= top {
+			b = int32(top)
+		} else if f > 0 {
+			b = int32(f)
+		}
+		keys[m], pos[m], bucket[m] = k, int32(i), b
 		start[b+1]++
+		m++
+		lo, hi = min(lo, k), max(hi, k)
 	}
-	for b := 1; b <= nb; b++ {
-		start[b] += start[b-1]
+	sc.setSpan(lo, hi, nb)
+	zp = pos[z:]
+	if m == 0 {
+		return zp, nil, nil, true
 	}
-	sk, sp := resize(sc.sortedKeys, m), resize(sc.sortedPos, m)
+	acc := int32(0)
+	for b, c := range start {
+		acc += c
+		start[b] = acc
+	}
+	sk, sp = grow(sc.sortedKeys, m), grow(sc.sortedPos, m)
 	sc.sortedKeys, sc.sortedPos = sk, sp
-	for i, b := range bucket {
+	for i, b := range bucket[:m] {
 		o := start[b]
 		sk[o], sp[o] = keys[i], pos[i]
 		start[b] = o + 1
 	}
 	for i := 1; i < m; i++ {
-		k, p := sk[i], sp[i]
+		k := sk[i]
+		if sk[i-1] <= k {
+			continue
+		}
+		p := sp[i]
 		j := i
 		for j > 0 && sk[j-1] > k {
 			sk[j], sp[j] = sk[j-1], sp[j-1]
@@ -450,18 +567,28 @@ func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 		}
 		sk[j], sp[j] = k, p
 	}
-	for i := 0; i < m; {
-		j := i
-		for j+1 < m && sk[j+1] == sk[i] {
-			j++
-		}
-		avg := float64(zeros+i+zeros+j)/2 + 1
-		for k := i; k <= j; k++ {
-			ranks[sp[k]] = avg
-		}
-		i = j + 1
+	return zp, sk, sp, true
+}
+
+// setSpan sets the bucket function of the next sortPositive call to the
+// bits lo..hi over nb buckets (all in the first bucket when hi <= lo).
+// k - lo for bits k of values >= +0 is below 2^63 in magnitude, so
+// int64(k - lo) is its signed difference.
+func (sc *evalScratch) setSpan(lo, hi uint64, nb int) {
+	sc.spanSet = true
+	sc.spanLo, sc.spanScale = lo, 0
+	if hi > lo {
+		sc.spanScale = float64(nb-1) / float64(int64(hi-lo))
 	}
-	return ranks
+}
+
+// grow returns s with length n, reusing its memory when large enough; its
+// elements are left as they were (the caller overwrites them).
+func grow[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n)
+	}
+	return s[:n]
 }
 
 // resize returns s with length n and every element zero, reusing its
@@ -508,16 +635,25 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 	c := make([]int32, len(e.ids))
 	aucs := make([]float64, 0, d.B)
 	for b := 0; b < d.B; b++ {
-		rs.gather(b, e.ids, c)
 		// The AUC of eval: the mean placement over the drawn copies,
 		// summed in the same order. eval skips the presences not drawn;
 		// adding their 0 x placement (+0: placements are finite and >= 0)
 		// to a sum that starts at +0 leaves its bits as they are.
 		r := 0
 		var sa float64
-		for k, c := range c {
-			r += int(c)
-			sa += float64(c) * e.v[k]
+		if rs.tab != nil {
+			row, v := rs.tab.row(b), e.v[:len(e.ids)]
+			for k, id := range e.ids {
+				c := row[id]
+				r += int(c)
+				sa += float64(c) * v[k]
+			}
+		} else {
+			rs.gather(b, e.ids, c)
+			for k, c := range c {
+				r += int(c)
+				sa += float64(c) * e.v[k]
+			}
 		}
 		if r > 0 {
 			aucs = append(aucs, sa/float64(r))
@@ -694,8 +830,7 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		}
 		x.Diff = x.A - x.B
 		_, x.SD = MeanSD(ds)
-		slices.Sort(ds)
-		x.Low, x.High = QuantileSorted(ds, 0.025), QuantileSorted(ds, 0.975)
+		x.Low, x.High = quantileSelect(ds, 0.025), quantileSelect(ds, 0.975)
 	}
 	for i := range cmp.PartialROC {
 		finish(&cmp.PartialROC[i], diffs[i])

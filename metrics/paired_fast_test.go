@@ -84,11 +84,13 @@ func (e *Evaluator) evalReference(count []int32) Values {
 	return out
 }
 
-// TestAverageRanksInto: the bucket-sort ranks equal Ranks' on values with
-// many ties, few ties and none, zeros, in random order and in runs
-// (ascending, descending, rising and falling waves), with one value far
-// above the rest, with one positive value, on no value, and (through the
-// fallback) with a negative value.
+// TestAverageRanksInto: the ranks equal Ranks' on values with many ties,
+// few ties and none, zeros, in random order (the insertion sort runs out
+// of moves and the bucket sort finishes) and in runs (ascending,
+// descending, rising and falling waves, nearly ascending and nearly
+// descending with zeros among them), with one value far above the rest,
+// with one positive value, on no value, and (through the fallback) with a
+// negative value.
 func TestAverageRanksInto(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
 	var sc evalScratch
@@ -102,7 +104,7 @@ func TestAverageRanksInto(t *testing.T) {
 		for i := range v {
 			v[i] = float64(r.IntN(levels)) / 7
 		}
-		switch trial % 7 {
+		switch trial % 9 {
 		case 0:
 			v[0] = 0 // zeros among positives
 		case 1:
@@ -126,6 +128,18 @@ func TestAverageRanksInto(t *testing.T) {
 		case 6: // one positive value, with and without zeros
 			for i := range v {
 				v[i] = 0.5 * float64(r.IntN(2))
+			}
+		case 7, 8: // nearly in order (a few swaps, some zeros), either way
+			slices.Sort(v)
+			if trial%9 == 8 {
+				slices.Reverse(v)
+			}
+			for range 1 + r.IntN(n/4+1) {
+				i, j := r.IntN(n), r.IntN(n)
+				v[i], v[j] = v[j], v[i]
+			}
+			for range r.IntN(3) {
+				v[r.IntN(n)] = 0
 			}
 		}
 		if got, want := averageRanksInto(v, &sc), ranksOf(v); !reflect.DeepEqual(got, want) {
@@ -215,10 +229,11 @@ func BenchmarkBootSD(b *testing.B) {
 	}
 	d := Draws{N: len(ids), B: 1000, Seed: 1}
 	b.ReportAllocs()
-	b.ResetTimer()
+	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
 		ev.BootSD(d)
 	}
+	stop()
 }
 
 // ranksOf is Ranks without the tie term.
@@ -243,12 +258,9 @@ func BenchmarkAverageRanks(b *testing.B) {
 		ratios = append(ratios, slices.Clone(sc.ratio))
 	}
 	b.ReportAllocs()
-	b.ResetTimer()
-	lockThread()
-	defer unlockThread()
-	cpu0 := threadCPU()
+	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
 		averageRanksInto(ratios[i%len(ratios)], &sc)
 	}
-	b.ReportMetric(float64((threadCPU()-cpu0).Nanoseconds())/float64(b.N), "cpu-ns/op")
+	stop()
 }

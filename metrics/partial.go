@@ -3,7 +3,6 @@ package metrics
 import (
 	"math"
 	"math/rand/v2"
-	"slices"
 )
 
 // pcgStream is xored with Settings.Seed to form the second PCG seed word.
@@ -318,9 +317,8 @@ func partialROC(p *presences, s Settings) []PartialROC {
 			}
 		}
 		out[i].PValue = float64(le) / float64(len(rs))
-		slices.Sort(rs)
-		out[i].CILow = QuantileSorted(rs, 0.025)
-		out[i].CIHigh = QuantileSorted(rs, 0.975)
+		out[i].CILow = quantileSelect(rs, 0.025)
+		out[i].CIHigh = quantileSelect(rs, 0.975)
 	}
 	return out
 }

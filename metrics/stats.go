@@ -128,6 +128,79 @@ func Quantile(v []float64, p float64) float64 {
 	return QuantileSorted(s, p)
 }
 
+// quantileSelect returns QuantileSorted of v sorted ascending (v not
+// empty), finding the two order statistics it reads by selection
+// (selectKth) rather than sorting v: O(len(v)) expected instead of
+// O(len(v) log len(v)). It reorders v. The order statistics are values, the
+// same whatever the algorithm that finds them, so the result is the same
+// bits; -0 and +0 compare equal, and the interpolation gives the same
+// result for either (a - b is exact when either is zero, and x + 0 is x
+// for x != 0, +0 for x = ±0 unless both terms are -0, which would need a
+// negative difference of zeros). With a NaN in v it sorts v instead (NaNs
+// go first, as slices.Sort puts them).
+func quantileSelect(v []float64, p float64) float64 {
+	for _, x := range v {
+		if x != x {
+			slices.Sort(v)
+			return QuantileSorted(v, p)
+		}
+	}
+	h := float64(len(v)-1) * p
+	lo := int(math.Floor(h))
+	if lo >= len(v)-1 {
+		selectKth(v, len(v)-1)
+		return v[len(v)-1]
+	}
+	if lo < 0 {
+		selectKth(v, 0)
+		return v[0]
+	}
+	selectKth(v, lo)
+	next := slices.Min(v[lo+1:]) // v[lo+1:] holds the values >= v[lo]
+	return v[lo] + (h-float64(lo))*(next-v[lo])
+}
+
+// selectKth reorders v (no NaN) so that v[k] is the k-th smallest value
+// (0-based), no value before it is larger and none after it smaller
+// (quickselect with a median-of-three pivot and a three-way partition,
+// Hoare 1961, Communications of the ACM 4:321-322; after 64 rounds the
+// rest is sorted, so the worst case is O(n log n)).
+func selectKth(v []float64, k int) {
+	lo, hi := 0, len(v) // the k-th smallest lies in v[lo:hi]
+	for round := 0; hi-lo > 16; round++ {
+		if round == 64 {
+			slices.Sort(v[lo:hi])
+			return
+		}
+		a, b, c := v[lo], v[lo+(hi-lo)/2], v[hi-1]
+		pivot := max(min(a, b), min(max(a, b), c))
+		// v[lo:lt] < pivot, v[lt:i] == pivot, v[gt:hi] > pivot.
+		lt, i, gt := lo, lo, hi
+		for i < gt {
+			switch x := v[i]; {
+			case x < pivot:
+				v[lt], v[i] = x, v[lt]
+				lt++
+				i++
+			case x > pivot:
+				gt--
+				v[gt], v[i] = x, v[gt]
+			default:
+				i++
+			}
+		}
+		switch {
+		case k < lt:
+			hi = lt
+		case k >= gt:
+			lo = gt
+		default:
+			return
+		}
+	}
+	slices.Sort(v[lo:hi])
+}
+
 // QuantileSorted is Quantile for s already sorted ascending and not empty.
 func QuantileSorted(s []float64, p float64) float64 {
 	h := float64(len(s)-1) * p

@@ -2,7 +2,9 @@ package metrics
 
 import (
 	"math"
+	"math/rand/v2"
 	"reflect"
+	"slices"
 	"testing"
 )
 
@@ -72,5 +74,52 @@ func TestQuantileSorted(t *testing.T) {
 	}
 	if got := QuantileSorted([]float64{7}, 0.3); got != 7 {
 		t.Errorf("one value: %v, want 7", got)
+	}
+}
+
+// TestQuantileSelect: selecting the order statistics gives bit for bit
+// what sorting gives (QuantileSorted), for the percentiles the bootstraps
+// use and a few more, on random values with many ties (few levels), zeros
+// of both signs, all values equal, one or two values, sorted and reversed
+// input, and with a NaN (sorted instead).
+func TestQuantileSelect(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for trial := 0; trial < 2000; trial++ {
+		n := 1 + r.IntN(1200)
+		if trial%10 == 0 {
+			n = 1 + r.IntN(3)
+		}
+		levels := 1 + r.IntN(3*n)
+		v := make([]float64, n)
+		for i := range v {
+			v[i] = float64(r.IntN(levels)-levels/3) / 7
+		}
+		switch trial % 6 {
+		case 1:
+			for i := range v {
+				if r.IntN(3) == 0 {
+					v[i] = math.Copysign(0, float64(r.IntN(2)*2-1))
+				}
+			}
+		case 2:
+			slices.Sort(v)
+		case 3:
+			slices.Sort(v)
+			slices.Reverse(v)
+		case 4:
+			for i := range v {
+				v[i] = 0.5
+			}
+		case 5:
+			v[r.IntN(n)] = math.NaN()
+		}
+		sorted := slices.Clone(v)
+		slices.Sort(sorted)
+		for _, p := range []float64{0, 0.025, 0.25, 0.5, 0.975, 1} {
+			got, want := quantileSelect(slices.Clone(v), p), QuantileSorted(sorted, p)
+			if math.Float64bits(got) != math.Float64bits(want) && !(got != got && want != want) {
+				t.Fatalf("trial %d, p %g, n %d: %v (bits %x), want %v (bits %x)", trial, p, n, got, math.Float64bits(got), want, math.Float64bits(want))
+			}
+		}
 	}
 }
