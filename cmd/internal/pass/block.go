@@ -491,9 +491,9 @@ func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator
 }
 
 // scoreBlock adds every valid cell of b (decoded) to the accumulators of
-// the smallest member of each group holding it.
-func scoreBlock(g *extent.Grid, bd *band, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
-	ws.planBlock(bd, b)
+// the smallest member of each group holding it, by the block's plan
+// (planBlock, called before).
+func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
 	ws.share(layout, accs)
 	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w

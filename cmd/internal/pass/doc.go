@@ -18,7 +18,9 @@
 // A model whose values are computed rather than read (Virtual: a Field
 // such as the distance-only null) goes through the same workers and code:
 // each worker's Source computes the cells of its block that lie in some
-// extent. Options.Rows lets a caller see each row's values and area
+// extent, those of the block's segments: the pass plans a block before it
+// reads it, so a computed model's source follows the same plan instead of
+// walking the extents again. Options.Rows lets a caller see each row's values and area
 // weights (the null's sorting-bias tally). Options.RowRange restricts a
 // pass to a range of grid rows (a shard's share of a run): passes over
 // ranges that split the grid add up exactly to the whole pass, and

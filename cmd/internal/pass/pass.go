@@ -235,6 +235,13 @@ type shower interface {
 	shownValues(n int) []float64
 }
 
+// planned is a Source that reads a block by its plan (a Virtual's: the
+// cells to compute are those of the block's segments): the pass plans
+// each block before reading it and hands the plan over with usePlan.
+type planned interface {
+	usePlan(ws *workerState)
+}
+
 // each reads every block in order and sends it to out, still encoded (the
 // consumer decodes, so that decoding runs on the workers); buffers come
 // back through free. It stops at the first read error.
@@ -502,6 +509,14 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 					b.h = min(y0+b.h, rows.End) - b.y0
 				}
 				b.buf = ws.buf[:b.w*b.h]
+				// The block's plan before its cells: a planned source
+				// reads by it.
+				by := i / nx
+				bd := bands.get(by, ws)
+				ws.planBlock(bd, b)
+				if ps, ok := src.(planned); ok {
+					ps.usePlan(ws)
+				}
 				if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
 					pt.err = err
 					failed.Store(true)
@@ -514,9 +529,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 				if !st.AnyValid {
 					st.AnyValid = slices.ContainsFunc(b.buf, valid)
 				}
-				by := i / nx
-				bd := bands.get(by, ws)
-				if err := scoreBlock(g, bd, layout, b, pt.accs, &st, ws, opt); err != nil {
+				if err := scoreBlock(g, layout, b, pt.accs, &st, ws, opt); err != nil {
 					pt.err = err
 					failed.Store(true)
 					break

@@ -65,19 +65,21 @@ func NullTally(fam *extent.Family, bg *nullmodel.Background) func(row, c0 int, v
 // member of fam, as NullTally's row hook would: the same cells, values
 // (the midpoints of each cell's own bounds) and weights, each cell to its
 // ring in each nested group (bg.Nest is called now). On the bounded path
-// each worker's source adds a block's rows in the walk of the family's
-// rings that finds the block's extremes (see exactExtremes), so the rings
-// of a row are walked once for both; otherwise the pass calls NullTally's
-// hook. fam must be the family the passes score.
+// each worker's source adds a block's rows segment by segment in the walk
+// of the block's plan that finds the block's extremes (see
+// exactExtremes): each segment's cells once to the members of its
+// signature, which are the members whose ring holds them (integer sums:
+// the totals of a walk of each member's ring); otherwise the pass calls
+// NullTally's hook. fam must be the family the passes score.
 func (v *Virtual) Tally(fam *extent.Family, bg *nullmodel.Background) {
 	bg.Nest(fam.Groups())
 	v.bg = bg
 }
 
 // rowTally is one worker's sorting-bias tally inside a Virtual's source:
-// begin a row, add each member's ring runs as Family.Rings gives them,
-// end the row. A row is prepared (nullmodel.Row) only when some member
-// has cells in it, as the pass calls its row hook only for those rows.
+// begin a row, add each segment with its signature's members, end the
+// row. A row is prepared (nullmodel.Row) only when it has a segment, as
+// the pass calls its row hook only for those rows.
 type rowTally struct {
 	g       *extent.Grid
 	bg      *nullmodel.Background
@@ -86,8 +88,7 @@ type rowTally struct {
 	set     bool // the row is prepared and t held
 	t       nullmodel.Tally
 	r       nullmodel.Row
-	runs    []int32 // the runs of the batch
-	batch   []int   // members whose ring has those runs in the row
+	ks      []int // the members of the segment added
 	areas   []float64
 	weights []int64
 	rowW    []int64 // grids of one cell area per row: 1 + the row's weight, 0 until computed
@@ -95,41 +96,25 @@ type rowTally struct {
 
 func (tl *rowTally) begin(row, c0 int, vals []float64) {
 	tl.row, tl.c0, tl.vals, tl.set = row, c0, vals, false
-	tl.batch = tl.batch[:0]
 }
 
-// add takes member k's ring runs in the row (NullTally's add).
-func (tl *rowTally) add(k int, runs []int32) {
-	if len(runs) == 0 {
-		return
-	}
-	if len(tl.batch) > 0 && !slices.Equal(runs, tl.runs) {
-		tl.flush()
-	}
-	if len(tl.batch) == 0 {
-		tl.runs = append(tl.runs[:0], runs...)
-	}
-	tl.batch = append(tl.batch, k)
-}
-
-// flush adds the batch's runs to its members, preparing the row first.
-func (tl *rowTally) flush() {
+// add adds cells a <= x < b of the row (columns relative to c0) to each
+// member of ms, preparing the row first.
+func (tl *rowTally) add(ms []int32, a, b int) {
 	if !tl.set {
 		tl.r.SetValues(tl.vals, tl.rowWeights())
 		tl.t = tl.bg.Tally()
 		tl.set = true
 	}
-	for i := 0; i < len(tl.runs); i += 2 {
-		tl.t.AddAll(tl.batch, &tl.r, int(tl.runs[i])-tl.c0, int(tl.runs[i+1])-tl.c0)
+	tl.ks = tl.ks[:0]
+	for _, k := range ms {
+		tl.ks = append(tl.ks, int(k))
 	}
-	tl.batch = tl.batch[:0]
+	tl.t.AddAll(tl.ks, &tl.r, a, b)
 }
 
-// end adds the last batch and releases the partial sum.
+// end releases the partial sum.
 func (tl *rowTally) end() {
-	if len(tl.batch) > 0 {
-		tl.flush()
-	}
 	if tl.set {
 		tl.t.Done()
 		tl.set = false

@@ -3,7 +3,6 @@ package pass
 import (
 	"fmt"
 	"math"
-	"slices"
 
 	"areasweep/extent"
 	"areasweep/extent/geodesy"
@@ -132,31 +131,40 @@ func (v *Virtual) Blocks() int {
 }
 
 // virtualSource is one worker's Source of a Virtual: it computes the cells
-// of a block that lie in some member of the family.
+// of a block that lie in some member of the family, those of the block's
+// segments (the block's plan, handed over by the pass with usePlan before
+// each ReadBlock: the family's rings are walked once per block row, in
+// the band, not again by the source).
 type virtualSource struct {
-	v      *Virtual
-	fam    *extent.Family
-	groups [][]int
-	outer  []int // the largest member of each group: their union is every member's cells
-	need   []uint64
-	span   extent.SpanScratch
-	prev   []int32 // the runs walked last in the row (markNeed, exactExtremes)
+	v    *Virtual
+	ws   *workerState // the plan of the block being read
+	need []uint64
 	// bounded path
-	bf           BoundedField
-	bins         Binner
-	lo, hi       []float64
-	shown        []float64     // the midpoints of the cells' own bounds
-	minHi, maxLo []float64     // per member: smallest upper and largest lower bound in the block
-	rowLo, rowHi []float64     // per row and member: smallest lower and largest upper bound
-	whole        []rowExtremes // per block row: the extremes of all its cells
-	one          [1]float64
-	tally        *rowTally // Virtual.Tally's, on the bounded path
+	bf     BoundedField
+	bins   Binner
+	lo, hi []float64
+	shown  []float64     // the midpoints of the cells' own bounds
+	minHi  []float64     // per member: smallest upper bound in the block
+	maxLo  []float64     // per member: largest lower bound in the block
+	segLo  []float64     // per segment of the block: smallest lower bound
+	segHi  []float64     // per segment of the block: largest upper bound
+	sigMn  []float64     // per signature: the largest of its members' minHi
+	sigMx  []float64     // per signature: the smallest of its members' maxLo
+	whole  []rowExtremes // per block row: the extremes of all its cells
+	one    [1]float64
+	tally  *rowTally // Virtual.Tally's, on the bounded path
 }
+
+// usePlan takes the plan of the next block read (see planned).
+func (s *virtualSource) usePlan(ws *workerState) { s.ws = ws }
 
 // ReadBlock fills buf with the field's values, NaN where the cell is in no
 // member or has no value.
 func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
-	need := s.markNeed(x0, y0, w, h)
+	if s.ws == nil || len(s.ws.sRow) != h+1 {
+		return &InternalError{fmt.Errorf("pass: internal: virtual block at (%d, %d) read without its plan", x0, y0)}
+	}
+	need := s.markNeed(w, h)
 	if s.bf == nil {
 		s.v.field.Fill(x0, y0, w, h, need, buf[:w*h])
 		return nil
@@ -234,24 +242,23 @@ func (s *virtualSource) shownValues(n int) []float64 {
 	return s.shown[:n]
 }
 
-// markNeed returns the need words of the block at (x0, y0) of w x h
-// cells: need[y*w+x] set for every cell that lies in some member, or nil
-// when every cell does because one member holds each whole row (the inside
-// of large extents; nil means every cell to Fill and Bounds, and saves
-// their test per cell). A group whose runs in a row are those of the group
-// before (often the case: several extents covering the row) is not walked
-// again.
-func (s *virtualSource) markNeed(x0, y0, w, h int) []uint64 {
+// markNeed returns the need words of the block of w x h cells whose plan
+// s.ws holds: need[y*w+x] set for every cell of a segment (the cells
+// that lie in some member), or nil when the segments cover every row
+// whole (the inside of large extents; nil means every cell to Fill and
+// Bounds, and saves their test per cell).
+func (s *virtualSource) markNeed(w, h int) []uint64 {
+	segs, sRow := s.ws.segs, s.ws.sRow
 	full := true
 	for y := 0; y < h && full; y++ {
-		full = false
-		for _, k := range s.outer {
-			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
-			if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
-				full = true
+		x := int32(0)
+		for _, sg := range segs[sRow[y]:sRow[y+1]] {
+			if sg.x0 != x {
 				break
 			}
+			x = sg.x1
 		}
+		full = x == int32(w)
 	}
 	if full {
 		return nil
@@ -259,18 +266,10 @@ func (s *virtualSource) markNeed(x0, y0, w, h int) []uint64 {
 	need := s.need[:w*h]
 	clear(need)
 	for y := range h {
-		s.prev = s.prev[:0]
-		for g, k := range s.outer {
-			runs := s.fam.Span(k, -1, y0+y, x0, x0+w, &s.span)
-			if g > 0 && slices.Equal(runs, s.prev) {
-				continue
+		for _, sg := range segs[sRow[y]:sRow[y+1]] {
+			for x := y*w + int(sg.x0); x < y*w+int(sg.x1); x++ {
+				need[x] = 1
 			}
-			for i := 0; i < len(runs); i += 2 {
-				for x := int(runs[i]) - x0; x < int(runs[i+1])-x0; x++ {
-					need[y*w+x] = 1
-				}
-			}
-			s.prev = append(s.prev[:0], runs...)
 		}
 	}
 	return need
@@ -278,92 +277,112 @@ func (s *virtualSource) markNeed(x0, y0, w, h int) []uint64 {
 
 // exactExtremes computes exactly (lo = hi = buf = Fill's value) every cell of
 // the block that may hold the smallest or the largest value of a member
-// it is added to (see Virtual). A first walk finds each member's smallest
-// upper and largest lower bound in the block and, per row, its smallest
-// lower and largest upper bound (those ReadBlock kept of the whole row
-// when the member holds all of it, and the previous member's figures when
-// its runs in the row are the same: minima and maxima of the same cells,
-// in the same order); the second walk visits only the rows that can hold
-// such a cell.
+// it is added to (see Virtual): those members are its segment's
+// signature. A first walk of the block's segments finds each segment's
+// extremes of the bounds (those ReadBlock kept of the whole row when the
+// segment is all of it), folded into each signature's and then each
+// member's smallest upper and largest lower bound in the block; a cell
+// may then hold a member's extreme when lo <= that member's smallest
+// upper bound or hi >= its largest lower bound for some member of its
+// signature, that is lo <= the largest of those smallest upper bounds or
+// hi >= the smallest of those largest lower bounds (sigMn, sigMx). The
+// second walk visits only the segments whose extremes reach them.
+// Comparisons and minima alone: the cells computed do not depend on the
+// order of the walk, and are those of a walk of each member's ring.
+// The sorting-bias tally adds each row's segments to their signatures in
+// the first walk.
 func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
-	nm := len(s.minHi)
+	ws := s.ws
+	segs, sRow := ws.segs, ws.sRow
 	for k := range s.minHi {
 		s.minHi[k], s.maxLo[k] = math.Inf(1), math.Inf(-1)
 	}
-	if cap(s.rowLo) < h*nm {
-		s.rowLo, s.rowHi = make([]float64, h*nm), make([]float64, h*nm)
+	nsig := len(ws.sigCells)
+	if cap(s.sigMn) < nsig {
+		s.sigMn, s.sigMx = make([]float64, nsig), make([]float64, nsig)
 	}
-	rowLo, rowHi := s.rowLo[:h*nm], s.rowHi[:h*nm]
+	sigMn, sigMx := s.sigMn[:nsig], s.sigMx[:nsig]
+	for i := range sigMn {
+		sigMn[i], sigMx[i] = math.Inf(1), math.Inf(-1)
+	}
+	if cap(s.segLo) < len(segs) {
+		s.segLo, s.segHi = make([]float64, len(segs)), make([]float64, len(segs))
+	}
+	segLo, segHi := s.segLo[:len(segs)], s.segHi[:len(segs)]
 	tl := s.tally
 	for y := range h {
-		s.prev = s.prev[:0]
-		first := true
-		var mn, mx, rl, rh float64
 		if tl != nil {
 			tl.begin(y0+y, x0, s.shown[y*w:(y+1)*w])
 		}
-		for _, seq := range s.groups {
-			s.fam.Rings(seq, y0+y, x0, x0+w, &s.span, func(k int, runs []int32) {
-				if tl != nil {
-					tl.add(k, runs)
-				}
-				if len(runs) == 2 && int(runs[0]) == x0 && int(runs[1]) == x0+w {
-					// The whole row: its extremes from ReadBlock's walk.
-					e := s.whole[y]
-					mn, mx, rl, rh = e.minHi, e.maxLo, e.minLo, e.maxHi
-					s.prev = append(s.prev[:0], runs...)
-					first = false
-				} else if first || !slices.Equal(runs, s.prev) {
-					mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
-					for j := 0; j < len(runs); j += 2 {
-						a, b := y*w+int(runs[j])-x0, y*w+int(runs[j+1])-x0
-						// NaN compares false: cells with no value are left out.
-						for i, l := range lo[a:b] {
-							u := hi[a+i]
-							if u < mn {
-								mn = u
-							}
-							if l > mx {
-								mx = l
-							}
-							if l < rl {
-								rl = l
-							}
-							if u > rh {
-								rh = u
-							}
-						}
+		for j := sRow[y]; j < sRow[y+1]; j++ {
+			sg := segs[j]
+			if tl != nil {
+				tl.add(ws.members(sg.sig), int(sg.x0), int(sg.x1))
+			}
+			var mn, mx, rl, rh float64
+			if sg.x0 == 0 && int(sg.x1) == w {
+				// The whole row: its extremes from ReadBlock's walk.
+				e := s.whole[y]
+				mn, mx, rl, rh = e.minHi, e.maxLo, e.minLo, e.maxHi
+			} else {
+				mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+				a, b := y*w+int(sg.x0), y*w+int(sg.x1)
+				// NaN compares false: cells with no value are left out.
+				for i, l := range lo[a:b] {
+					u := hi[a+i]
+					if u < mn {
+						mn = u
 					}
-					s.prev = append(s.prev[:0], runs...)
-					first = false
+					if l > mx {
+						mx = l
+					}
+					if l < rl {
+						rl = l
+					}
+					if u > rh {
+						rh = u
+					}
 				}
-				s.minHi[k], s.maxLo[k] = min(s.minHi[k], mn), max(s.maxLo[k], mx)
-				rowLo[y*nm+k], rowHi[y*nm+k] = rl, rh
-			})
+			}
+			sigMn[sg.sig], sigMx[sg.sig] = min(sigMn[sg.sig], mn), max(sigMx[sg.sig], mx)
+			segLo[j], segHi[j] = rl, rh
 		}
 		if tl != nil {
 			tl.end()
 		}
 	}
+	// Each member's extremes from its signatures', then each signature's
+	// thresholds from its members'.
+	for id, c := range ws.sigCells {
+		if c == 0 {
+			continue
+		}
+		for _, k := range ws.members(int32(id)) {
+			s.minHi[k], s.maxLo[k] = min(s.minHi[k], sigMn[id]), max(s.maxLo[k], sigMx[id])
+		}
+	}
+	for id, c := range ws.sigCells {
+		if c == 0 {
+			continue
+		}
+		mn, mx := math.Inf(-1), math.Inf(1)
+		for _, k := range ws.members(int32(id)) {
+			mn, mx = max(mn, s.minHi[k]), min(mx, s.maxLo[k])
+		}
+		sigMn[id], sigMx[id] = mn, mx
+	}
 	for y := range h {
-		for _, seq := range s.groups {
-			inner := -1
-			for _, k := range seq {
-				mn, mx := s.minHi[k], s.maxLo[k]
-				if !(rowLo[y*nm+k] <= mn || rowHi[y*nm+k] >= mx) {
-					inner = k
-					continue
+		for j := sRow[y]; j < sRow[y+1]; j++ {
+			sg := segs[j]
+			mn, mx := sigMn[sg.sig], sigMx[sg.sig]
+			if !(segLo[j] <= mn || segHi[j] >= mx) {
+				continue
+			}
+			for i := y*w + int(sg.x0); i < y*w+int(sg.x1); i++ {
+				if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
+					s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
+					lo[i], hi[i], buf[i] = s.one[0], s.one[0], s.one[0]
 				}
-				runs := s.fam.Span(k, inner, y0+y, x0, x0+w, &s.span)
-				for j := 0; j < len(runs); j += 2 {
-					for i := y*w + int(runs[j]) - x0; i < y*w+int(runs[j+1])-x0; i++ {
-						if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
-							s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
-							lo[i], hi[i], buf[i] = s.one[0], s.one[0], s.one[0]
-						}
-					}
-				}
-				inner = k
 			}
 		}
 	}
@@ -379,10 +398,6 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		return nil, Stats{}, &InternalError{fmt.Errorf("pass: internal: virtual model scored on another grid")}
 	}
 	groups := fam.Groups()
-	outer := make([]int, len(groups))
-	for i, seq := range groups {
-		outer[i] = seq[len(seq)-1]
-	}
 	bf, _ := v.field.(BoundedField)
 	if _, floored := layout.HistFloor(); !floored {
 		bf = nil // histogram edges unknown before the pass: compute every cell
@@ -403,7 +418,7 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		fb = newFloorBinner(layout)
 	}
 	open := func() (Source, error) {
-		src := &virtualSource{v: v, fam: fam, groups: groups, outer: outer, need: make([]uint64, VirtualBlock*VirtualBlock)}
+		src := &virtualSource{v: v, need: make([]uint64, VirtualBlock*VirtualBlock)}
 		if bf != nil {
 			src.bf, src.bins = bf, fb
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
