@@ -12,14 +12,7 @@ import (
 // wall time per op and, as cpu-ns/op, the process's CPU time (user and
 // system, all threads) per op, the fair measure on a shared machine.
 func BenchmarkWriteStudy(b *testing.B) {
-	path := os.Getenv("AREASWEEP_BENCH_RESULTS")
-	if path == "" {
-		b.Skip("set AREASWEEP_BENCH_RESULTS to a results.json")
-	}
-	r, err := Load(path)
-	if err != nil {
-		b.Fatal(err)
-	}
+	r := benchResults(b)
 	if err := Analyze(r); err != nil {
 		b.Fatal(err)
 	}
@@ -32,6 +25,20 @@ func BenchmarkWriteStudy(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(processCPU()-c0)/float64(b.N), "cpu-ns/op")
+}
+
+// benchResults loads the results.json named by AREASWEEP_BENCH_RESULTS and
+// skips the benchmark when it names none.
+func benchResults(b *testing.B) *Results {
+	path := os.Getenv("AREASWEEP_BENCH_RESULTS")
+	if path == "" {
+		b.Skip("set AREASWEEP_BENCH_RESULTS to a results.json")
+	}
+	r, err := Load(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return r
 }
 
 // processCPU is the process's user and system CPU time so far.
@@ -47,14 +54,7 @@ func processCPU() time.Duration {
 // results.json named by AREASWEEP_BENCH_RESULTS (skipped otherwise), with
 // cpu-ns/op as in BenchmarkWriteStudy.
 func BenchmarkEncodeStudy(b *testing.B) {
-	path := os.Getenv("AREASWEEP_BENCH_RESULTS")
-	if path == "" {
-		b.Skip("set AREASWEEP_BENCH_RESULTS to a results.json")
-	}
-	r, err := Load(path)
-	if err != nil {
-		b.Fatal(err)
-	}
+	r := benchResults(b)
 	b.ReportAllocs()
 	c0 := processCPU()
 	for b.Loop() {

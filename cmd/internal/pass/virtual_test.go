@@ -229,20 +229,10 @@ func virtualEqualsRaster(t *testing.T, setup func(*testing.T) (*extent.Grid, *Vi
 // same cells (one walk for both).
 func TestRowsHook(t *testing.T) {
 	g, v, _, chained := nullSetup(t)
-	chained.Chains = map[string][]int{"west-in-all": {1, 0}}
+	twins := hookFamilies(g, chained)
 	if gr := chained.Groups(); len(gr) != 1 || len(gr[0]) != 2 {
 		t.Fatalf("groups %v, want one sequence of two nested members", gr)
 	}
-	mask := make([]uint64, g.Cells())
-	for i := range mask {
-		if i%97 != 0 {
-			mask[i] = 3
-			if i%g.Width < g.Width/3 {
-				mask[i] |= 4
-			}
-		}
-	}
-	twins := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
 	layout, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
@@ -279,15 +269,10 @@ func TestRowsHook(t *testing.T) {
 	}
 }
 
-// TestVirtualTally checks that a Virtual's own tally (Virtual.Tally: the
-// rows added by each worker's source in its walk of the block's rings)
-// encodes byte for byte as NullTally's row hook, on TestRowsHook's
-// families, with 1 and 3 workers, over the whole grid and over row ranges
-// that cut blocks (the sums of the ranges added up), and on a layout
-// without a floor (every cell computed; the tally then goes through the
-// hook).
-func TestVirtualTally(t *testing.T) {
-	g, v, _, chained := nullSetup(t)
+// hookFamilies makes chained (nullSetup's family) a chain, west inside all,
+// and returns the twins family of the row-hook tests: all, a copy of all
+// and west, each without every 97th cell.
+func hookFamilies(g *extent.Grid, chained *extent.Family) *extent.Family {
 	chained.Chains = map[string][]int{"west-in-all": {1, 0}}
 	mask := make([]uint64, g.Cells())
 	for i := range mask {
@@ -298,7 +283,19 @@ func TestVirtualTally(t *testing.T) {
 			}
 		}
 	}
-	twins := maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
+	return maskFamily(g, []extent.Member{{ID: "all", Status: vocab.StatusOK}, {ID: "all-again", Status: vocab.StatusOK}, {ID: "west", Status: vocab.StatusOK}}, mask)
+}
+
+// TestVirtualTally checks that a Virtual's own tally (Virtual.Tally: the
+// rows added by each worker's source in its walk of the block's rings)
+// encodes byte for byte as NullTally's row hook, on TestRowsHook's
+// families, with 1 and 3 workers, over the whole grid and over row ranges
+// that cut blocks (the sums of the ranges added up), and on a layout
+// without a floor (every cell computed; the tally then goes through the
+// hook).
+func TestVirtualTally(t *testing.T) {
+	g, v, _, chained := nullSetup(t)
+	twins := hookFamilies(g, chained)
 	floored, err := metrics.NewLayout([]float64{-1e4}, 64, metrics.WithHistFloor(metrics.FloorExp(4e5/64)))
 	if err != nil {
 		t.Fatal(err)
