@@ -83,26 +83,27 @@ func (v *Virtual) Tally(fam *extent.Family, bg *nullmodel.Background) {
 type rowTally struct {
 	g       *extent.Grid
 	bg      *nullmodel.Background
+	ws      *workerState // the worker's, for its row weights
 	row, c0 int
 	vals    []float64
 	set     bool // the row is prepared and t held
 	t       nullmodel.Tally
 	r       nullmodel.Row
 	ks      []int // the members of the segment added
-	areas   []float64
-	weights []int64
-	rowW    []int64 // grids of one cell area per row: 1 + the row's weight, 0 until computed
 }
 
-func (tl *rowTally) begin(row, c0 int, vals []float64) {
-	tl.row, tl.c0, tl.vals, tl.set = row, c0, vals, false
+func (tl *rowTally) begin(ws *workerState, row, c0 int, vals []float64) {
+	tl.ws, tl.row, tl.c0, tl.vals, tl.set = ws, row, c0, vals, false
 }
 
 // add adds cells a <= x < b of the row (columns relative to c0) to each
 // member of ms, preparing the row first.
 func (tl *rowTally) add(ms []int32, a, b int) {
 	if !tl.set {
-		tl.r.SetValues(tl.vals, tl.rowWeights())
+		// The weights the pass adds (the worker's, as scoreBlock takes
+		// them; Row copies what it keeps).
+		w, _ := tl.ws.rowWeights(tl.g, tl.row, tl.c0, tl.c0+len(tl.vals))
+		tl.r.SetValues(tl.vals, w)
 		tl.t = tl.bg.Tally()
 		tl.set = true
 	}
@@ -119,31 +120,4 @@ func (tl *rowTally) end() {
 		tl.t.Done()
 		tl.set = false
 	}
-}
-
-// rowWeights returns the integer area weights of the row's cells, those
-// the pass adds (RowWeights; one weight per row, computed once, on grids
-// whose rows have one cell area).
-func (tl *rowTally) rowWeights() []int64 {
-	g, n := tl.g, len(tl.vals)
-	if !g.Geographic && !g.EqualArea {
-		tl.areas, tl.weights = RowWeights(g, tl.row, tl.c0, tl.c0+n, tl.areas, tl.weights)
-		return tl.weights
-	}
-	if tl.rowW == nil {
-		tl.rowW = make([]int64, g.Height)
-	}
-	if tl.rowW[tl.row] == 0 {
-		var one []int64
-		tl.areas, one = RowWeights(g, tl.row, tl.c0, tl.c0+1, tl.areas, tl.weights)
-		tl.rowW[tl.row] = 1 + one[0]
-	}
-	if cap(tl.weights) < n {
-		tl.weights = make([]int64, n)
-	}
-	w := tl.weights[:n]
-	for i := range w {
-		w[i] = tl.rowW[tl.row] - 1
-	}
-	return w
 }

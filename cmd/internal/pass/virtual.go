@@ -312,7 +312,7 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 	tl := s.tally
 	for y := range h {
 		if tl != nil {
-			tl.begin(y0+y, x0, s.shown[y*w:(y+1)*w])
+			tl.begin(ws, y0+y, x0, s.shown[y*w:(y+1)*w])
 		}
 		for j := sRow[y]; j < sRow[y+1]; j++ {
 			sg := segs[j]
