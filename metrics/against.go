@@ -21,13 +21,19 @@ func (a *Accumulator) AUCAgainst(vals []float64) (auc float64, ok bool) {
 	if len(vals) == 0 || a.Area() <= 0 {
 		return 0, false
 	}
+	// below[i]: the area of bins 0..i-1, summed once (AreaAt sums them
+	// again for every value): the same integers, so the same result.
+	below := make([]int64, len(a.bins)+1)
+	for i, b := range a.bins {
+		below[i+1] = below[i] + b.area
+	}
 	var hi, lo uint64
 	for _, v := range vals {
-		below, equal, _, found := a.AreaAt(v)
-		if !found {
+		j := a.layout.index(v)
+		if j < 0 {
 			return 0, false
 		}
-		term := 2*uint64(below) + uint64(equal) // <= 2 W < 2^64
+		term := 2*uint64(below[2*j+1]) + uint64(a.bins[2*j+1].area) // <= 2 W < 2^64
 		var carry uint64
 		lo, carry = bits.Add64(lo, term, 0)
 		hi += carry

@@ -2,6 +2,7 @@ package metrics
 
 import (
 	"math"
+	"math/bits"
 	"math/rand/v2"
 	"testing"
 )
@@ -53,6 +54,9 @@ func TestAUCAgainst(t *testing.T) {
 		if want := num / den; math.Abs(got-want) > 1e-12 {
 			t.Errorf("case %d: AUCAgainst %v, brute force %v", c, got, want)
 		}
+		if want := aucAgainstByAreaAt(acc, pres); got != want {
+			t.Errorf("case %d: AUCAgainst %v, from AreaAt per value %v: not the same bits", c, got, want)
+		}
 	}
 
 	// Perfect separation with areas whose float conversions round: exactly 1.
@@ -74,6 +78,20 @@ func TestAUCAgainst(t *testing.T) {
 	if _, ok := lay.NewAccumulator().AUCAgainst(pres); ok {
 		t.Error("an empty background must not be ok")
 	}
+}
+
+// aucAgainstByAreaAt is AUCAgainst as it was written before the areas
+// below each bin were summed once: AreaAt per value.
+func aucAgainstByAreaAt(a *Accumulator, vals []float64) float64 {
+	var hi, lo uint64
+	for _, v := range vals {
+		below, equal, _, _ := a.AreaAt(v)
+		var carry uint64
+		lo, carry = bits.Add64(lo, 2*uint64(below)+uint64(equal), 0)
+		hi += carry
+	}
+	num := float64(hi)*0x1p64 + float64(lo)
+	return math.Min(1, math.Max(0, num/(2*float64(len(vals))*float64(a.Area()))))
 }
 
 // TestSignedZeroOrder checks that -0 and +0 added in either order, or

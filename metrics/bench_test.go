@@ -169,6 +169,40 @@ func BenchmarkScore(b *testing.B) {
 	}
 }
 
+// BenchmarkDecomposeRing times one ring decomposition (the ring's
+// accumulator and three AUCs against it, its inner and its outer extent)
+// with 500 test presences on a layout of 1,000 values, as the scoring
+// phase makes for each pair of consecutive extents of a nested chain and
+// model.
+func BenchmarkDecomposeRing(b *testing.B) {
+	r := rand.New(rand.NewPCG(4, 4))
+	vals := make([]float64, 1000)
+	for i := range vals {
+		vals[i] = 1 - r.Float64()*r.Float64()
+	}
+	l, err := NewLayout(vals, 1024)
+	if err != nil {
+		b.Fatal(err)
+	}
+	inner, outer := l.NewAccumulator(), l.NewAccumulator()
+	for i := 0; i < 200_000; i++ {
+		v, w := r.Float64(), int64(1+r.IntN(100))
+		outer.Add(v, w)
+		if i%3 != 0 {
+			inner.Add(v, w)
+		}
+	}
+	test := vals[:500]
+	b.ReportAllocs()
+	stop := startCPU(b)
+	for i := 0; i < b.N; i++ {
+		if _, err := DecomposeRing(inner, outer, test); err != nil {
+			b.Fatal(err)
+		}
+	}
+	stop()
+}
+
 // BenchmarkCompare times one paired comparison of two extents (B = 200
 // full-size resamples, two E values, two thresholds, the Boyce index) by
 // the number of test presences.

@@ -111,3 +111,19 @@ func TestPartialAreaFromCrossing(t *testing.T) {
 		t.Errorf("r = 0: %+v, want %+v", got, want)
 	}
 }
+
+// TestIntNSameAsRand: intN gives rand.Rand.IntN's numbers from the same
+// PCG, for powers of two, small and large n (rejections included).
+func TestIntNSameAsRand(t *testing.T) {
+	for _, n := range []int{1, 2, 3, 7, 64, 100, 250, 499, 500, 1 << 20, math.MaxInt/3 + 7, math.MaxInt} {
+		for seed := uint64(0); seed < 4; seed++ {
+			a, b := rand.NewPCG(seed, seed^pcgStream), rand.NewPCG(seed, seed^pcgStream)
+			r := rand.New(b)
+			for i := 0; i < 20000; i++ {
+				if got, want := intN(a, n), r.IntN(n); got != want {
+					t.Fatalf("n=%d seed=%d draw %d: intN %d, IntN %d", n, seed, i, got, want)
+				}
+			}
+		}
+	}
+}

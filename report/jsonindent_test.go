@@ -145,3 +145,24 @@ func TestIndentJSONSameAsIndent(t *testing.T) {
 		t.Fatalf("deep nesting: %s", firstDiff(got, want.Bytes()))
 	}
 }
+
+// TestIndentingWriter: one Write gives that piece indented; a second
+// Write leaves nothing valid (Encode then indents the whole instead).
+func TestIndentingWriter(t *testing.T) {
+	src := []byte(`{"a":[1,{"b":"x"}],"c":{}}` + "\n")
+	var w indentingWriter
+	if _, err := w.Write(src); err != nil {
+		t.Fatal(err)
+	}
+	var want bytes.Buffer
+	if err := json.Indent(&want, src, "", "  "); err != nil {
+		t.Fatal(err)
+	}
+	if w.writes != 1 || !bytes.Equal(w.out, want.Bytes()) {
+		t.Fatalf("one write: got %q (%d writes), want %q", w.out, w.writes, want.Bytes())
+	}
+	w.Write(src)
+	if w.writes != 2 || w.out != nil {
+		t.Fatalf("two writes: got %q (%d writes), want nothing", w.out, w.writes)
+	}
+}

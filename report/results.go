@@ -480,12 +480,40 @@ func Load(path string) (*Results, error) {
 // encoding/json and indented by indentJSON, which is faster than the
 // encoder's own indenting (TestEncodeSameAsEncodingJSON).
 func (r *Results) Encode() ([]byte, error) {
+	// The encoder hands its whole output to one Write; indenting it there
+	// saves copying 9 MB (60 extents) into a buffer of fresh memory first.
+	w := &indentingWriter{}
+	if err := json.NewEncoder(w).Encode(r); err != nil {
+		return nil, fmt.Errorf("report: encode results: %w", err)
+	}
+	if w.writes == 1 {
+		return w.out, nil
+	}
+	// Written in pieces (not what encoding/json does): indent the whole.
 	var buf bytes.Buffer
 	if err := json.NewEncoder(&buf).Encode(r); err != nil {
 		return nil, fmt.Errorf("report: encode results: %w", err)
 	}
-	// Indenting made a 60-extent study's file 1.55 times as large.
 	return indentJSON(make([]byte, 0, buf.Len()*7/4), buf.Bytes()), nil
+}
+
+// indentingWriter indents (indentJSON) what a json.Encoder writes when it
+// writes it in one piece: out is that piece indented, writes the number
+// of Write calls (out is valid only when it is 1).
+type indentingWriter struct {
+	out    []byte
+	writes int
+}
+
+func (w *indentingWriter) Write(p []byte) (int, error) {
+	w.writes++
+	if w.writes == 1 {
+		// Indenting made a 60-extent study's file 1.55 times as large.
+		w.out = indentJSON(make([]byte, 0, len(p)*7/4), p)
+	} else {
+		w.out = nil
+	}
+	return len(p), nil
 }
 
 // IsNull reports whether m is a null rather than a model under evaluation.
