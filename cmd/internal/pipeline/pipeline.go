@@ -73,6 +73,11 @@ type Study struct {
 	// when the points are placed and reused by its pass's layout.
 	firstVals  []float64
 	firstValid []bool
+	// first is the first model's raster, open from its sampling at the
+	// points (with the blocks it decoded there) until its pass plans it.
+	first *pass.Raster
+	// streams: the passes read their sums with Stream (SetSums clears it).
+	streams bool
 	fam        *extent.Family
 	res        *report.Results
 	dir        *outdir.Dir
@@ -105,7 +110,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if s.log == nil {
 		s.log = &Log{}
 	}
-	s.sums = (*Study).Stream
+	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
 	for _, step := range []func() error{
 		s.checkFiles,
@@ -141,6 +146,10 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 // Close removes the staging folder unless Finish moved it into place; it
 // is safe to call more than once.
 func (s *Study) Close() {
+	if s.first != nil {
+		s.first.Close()
+		s.first = nil
+	}
 	if s.dir != nil {
 		s.dir.Abort() // nothing once finished
 	}
