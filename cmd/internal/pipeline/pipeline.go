@@ -78,13 +78,13 @@ type Study struct {
 	first *pass.Raster
 	// streams: the passes read their sums with Stream (SetSums clears it).
 	streams bool
-	fam        *extent.Family
-	res        *report.Results
-	dir        *outdir.Dir
-	ownDir     bool
-	stage      string
-	valid      extent.Valid // nil until known: the family is then unclipped
-	nWarn      int          // family warnings already reported
+	fam     *extent.Family
+	res     *report.Results
+	dir     *outdir.Dir
+	ownDir  bool
+	stage   string
+	valid   extent.Valid // nil until known: the family is then unclipped
+	nWarn   int          // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator
