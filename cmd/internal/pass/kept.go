@@ -3,6 +3,7 @@ package pass
 import (
 	"math"
 	"sync/atomic"
+	"unsafe"
 )
 
 // keptBlocks holds blocks of stored values that Sample read, for the next
@@ -18,9 +19,18 @@ import (
 // that a block of 256 x 256 cells takes 256 KiB instead of 512 KiB.
 // Widening a float32 to float64 is exact, so a kept block gives the pass
 // exactly the values its read would have.
+//
+// The kept blocks lie in one slab of memory mapped for the Sample
+// (blockSlab: anonymous memory, transparent huge pages asked for where the
+// system has them) and unmapped when the pass returns: on a virtual
+// machine a first touch of fresh memory can cost 20 µs per 4 KiB page, as
+// much as decoding the block again, and the slab's huge pages take that
+// cost once per 2 MiB; its memory goes back to the system at once.
 type keptBlocks struct {
-	budget int64
-	used   atomic.Int64
+	// slab holds the kept blocks, carved from its start; used is the
+	// bytes carved.
+	slab []byte
+	used atomic.Int64
 	// rows: only blocks meeting these grid rows are kept.
 	rows RowRange
 	// blockH is the blocks' height, nx the blocks per block row.
@@ -39,42 +49,77 @@ type keptBlock struct {
 	f64 []float64
 }
 
+// keptBytes is the size of a kept block of n values: 4 or 8 bytes each
+// (narrow or not), rounded up to 8 bytes so that every block in the slab
+// is aligned for float64.
+func keptBytes(n int, narrow bool) int64 {
+	if narrow {
+		return (int64(n)*4 + 7) &^ 7
+	}
+	return int64(n) * 8
+}
+
 // newKeptBlocks returns an empty store for blocks of a width x height
-// raster in blockW x blockH blocks, or nil when budget <= 0.
-func newKeptBlocks(budget int64, rows RowRange, width, height, blockW, blockH int) *keptBlocks {
-	if budget <= 0 || blockW <= 0 || blockH <= 0 {
+// raster in blockW x blockH blocks, whose slab holds min(budget, need)
+// bytes (need: the blocks Sample may keep), or nil when that is 0 or the
+// memory cannot be mapped.
+func newKeptBlocks(budget, need int64, rows RowRange, width, height, blockW, blockH int) *keptBlocks {
+	size := min(budget, need)
+	if size <= 0 || blockW <= 0 || blockH <= 0 {
 		return nil
+	}
+	slab := blockSlab(size)
+	if slab == nil {
+		return nil // the pass reads every block, as without a budget
 	}
 	nx := (width + blockW - 1) / blockW
 	ny := (height + blockH - 1) / blockH
-	return &keptBlocks{budget: budget, rows: rows, blockH: blockH, nx: nx, blocks: make([]keptBlock, nx*ny)}
+	return &keptBlocks{slab: slab, rows: rows, blockH: blockH, nx: nx, blocks: make([]keptBlock, nx*ny)}
 }
 
-// reserve returns a buffer for block i's n stored values (h rows from
-// y0), float32 when narrow, for Sample to read the block into and keep;
-// ok is false when the block is outside the kept rows or beyond the
-// budget (Sample then reads it into its own buffer, and the pass reads it
-// again).
+// meets reports whether rows y0 <= row < y0+h meet the kept rows.
+func (k *keptBlocks) meets(y0, h int) bool { return y0 < k.rows.End && y0+h > k.rows.First }
+
+// reserve returns a buffer in the slab for block i's n stored values (h
+// rows from y0), float32 when narrow, for Sample to read the block into
+// and keep; ok is false when the block is outside the kept rows or the
+// slab is full (Sample then reads it into its own buffer, and the pass
+// reads it again).
 func (k *keptBlocks) reserve(i, y0, h, n int, narrow bool) (kb keptBlock, ok bool) {
-	if k == nil || y0 >= k.rows.End || y0+h <= k.rows.First {
+	if k == nil || !k.meets(y0, h) {
 		return keptBlock{}, false
 	}
-	size := int64(n) * 8
+	size := keptBytes(n, narrow)
+	var off int64
+	for {
+		off = k.used.Load()
+		if off+size > int64(len(k.slab)) {
+			return keptBlock{}, false
+		}
+		if k.used.CompareAndSwap(off, off+size) {
+			break
+		}
+	}
+	p := unsafe.Pointer(&k.slab[off])
 	if narrow {
-		size = int64(n) * 4
+		return keptBlock{f32: unsafe.Slice((*float32)(p), n)}, true
 	}
-	if k.used.Add(size) > k.budget {
-		k.used.Add(-size)
-		return keptBlock{}, false
-	}
-	if narrow {
-		return keptBlock{f32: make([]float32, n)}, true
-	}
-	return keptBlock{f64: make([]float64, n)}, true
+	return keptBlock{f64: unsafe.Slice((*float64)(p), n)}, true
 }
 
 // put keeps block i, read into a buffer from reserve.
 func (k *keptBlocks) put(i int, kb keptBlock) { k.blocks[i] = kb }
+
+// release unmaps the slab; the blocks may not be used after it. It is
+// safe on nil and more than once.
+func (k *keptBlocks) release() {
+	if k == nil || k.slab == nil {
+		return
+	}
+	clear(k.blocks)
+	freeSlab(k.slab)
+	k.slab = nil
+}
 
 // at returns the j-th stored value of the block.
 func (kb keptBlock) at(j int) float64 {

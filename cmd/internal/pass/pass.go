@@ -170,6 +170,7 @@ func (r *Raster) decode(buf []float64) {
 
 // Close closes the raster (and drops the blocks Sample kept).
 func (r *Raster) Close() error {
+	r.kept.release()
 	r.kept = nil
 	return r.ds.Close()
 }
@@ -187,6 +188,7 @@ func (r *Raster) KeepBlocks(maxBytes int64, rows *RowRange) {
 		r.keepRows = *rows
 	}
 	if maxBytes <= 0 {
+		r.kept.release()
 		r.kept = nil
 	}
 }
@@ -227,7 +229,21 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	}
 	starts = append(starts, len(order))
 	nb := len(starts) - 1
-	r.kept = newKeptBlocks(r.keep, r.keepRows, g.Width, g.Height, bw, bh)
+	r.kept.release()
+	r.kept = nil
+	if r.keep > 0 {
+		// The slab holds every block with a point in the kept rows, or
+		// as many as the budget allows.
+		var need int64
+		for k := range nb {
+			bi := blockOf(cells[order[starts[k]]])
+			x0, y0 := (bi%nbx)*bw, (bi/nbx)*bh
+			if h := min(bh, g.Height-y0); y0 < r.keepRows.End && y0+h > r.keepRows.First {
+				need += keptBytes(min(bw, g.Width-x0)*h, r.narrow)
+			}
+		}
+		r.kept = newKeptBlocks(r.keep, need, r.keepRows, g.Width, g.Height, bw, bh)
+	}
 	workers := min(runtime.GOMAXPROCS(0), nb)
 	errs := make([]error, max(workers, 1))
 	var wg sync.WaitGroup
@@ -283,6 +299,7 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
+			r.kept.release()
 			r.kept = nil
 			return nil, nil, err
 		}
@@ -515,6 +532,7 @@ func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layou
 	r.reused = 0
 	if kept != nil {
 		r.reused = int(kept.taken.Load())
+		kept.release() // every worker is done with it
 	}
 	return accs, st, err
 }
