@@ -266,8 +266,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	occDir := filepath.Join(f.dir, "occdir.csv")
 	os.Mkdir(occDir, 0o755)
 	// A folder named like a FileGDB passes the existence check; its
-	// checksum fails (it cannot be read as a file), alongside the points
-	// and the family.
+	// checksum fails (it cannot be read as a file), after the points.
 	fakeGDB := filepath.Join(f.dir, "fake.gdb")
 	os.Mkdir(fakeGDB, 0o755)
 

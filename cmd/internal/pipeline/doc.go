@@ -7,12 +7,10 @@
 //	Prepare  inputs      every input file exists (checkFiles)
 //	         grid        from the first model; the others must be SameAs
 //	         memory      the run's estimate against the available memory
-//	         checksums   SHA-256 of every input, on goroutines of their own
-//	                     alongside the points and the family (joined after
-//	                     the points for a merge, which checks them first)
 //	         points      occurrences read, placed on the grid, sampled on the
 //	                     first model (outside / no data), thinned per cell;
 //	                     the blocks sampled are kept for its pass
+//	         checksums   SHA-256 of every input
 //	         --out       locked, a staging folder made (package outdir)
 //	         family      extent.Build: every member's row runs
 //	Pass i   Plan        the source (raster or computed null), its values at

@@ -112,49 +112,25 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	}
 	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
-	for _, step := range []func() error{s.checkFiles, s.openGrid, s.checkMemory} {
+	for _, step := range []func() error{
+		s.checkFiles,
+		s.openGrid,
+		s.checkMemory,
+		func() error { return s.timed("occurrences read, placed and sampled", s.readPoints) },
+		func() error { return s.timed("input checksums (SHA-256)", s.checksums) },
+		s.checkExpectedInputs,
+		ctx.Err,
+	} {
 		if err := step(); err != nil {
 			s.Close()
 			return nil, err
 		}
 	}
-	// The input checksums run alongside the points and the family; a
-	// failure of the points comes first (it stops the hashing), and a
-	// failing checksum before any later failure, as when they ran in turn.
-	sums := s.startChecksums()
-	if err := s.timed("occurrences read, placed and sampled", s.readPoints); err != nil {
-		sums.cancel()
-		s.Close()
-		return nil, err
-	}
-	joined := false
-	fail := func(err error) (*Study, error) {
-		if !joined {
-			if cerr := s.joinChecksums(sums, "the points"); cerr != nil {
-				err = cerr
-			}
-		}
-		s.Close()
-		return nil, err
-	}
-	if o.ExpectInputs != nil {
-		// A merge checks its inputs against the shards' before it touches
-		// --out.
-		joined = true
-		if err := s.joinChecksums(sums, "the points"); err != nil {
-			return fail(err)
-		}
-		if err := s.checkExpectedInputs(); err != nil {
-			return fail(err)
-		}
-	}
-	if err := ctx.Err(); err != nil {
-		return fail(err)
-	}
 	if s.dir == nil {
 		var err error
 		if s.dir, err = outdir.Open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
-			return fail(err)
+			s.Close() // the first model's raster
+			return nil, err
 		}
 	}
 	if s.dir.Cleaned > 0 {
@@ -162,13 +138,8 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	}
 	s.stage = s.dir.Stage
 	if err := s.buildFamily(); err != nil {
-		return fail(err)
-	}
-	if !joined {
-		joined = true
-		if err := s.joinChecksums(sums, "the points and the extent family"); err != nil {
-			return fail(err)
-		}
+		s.Close()
+		return nil, err
 	}
 	return s, nil
 }

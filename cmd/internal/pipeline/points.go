@@ -11,8 +11,6 @@ import (
 	"runtime"
 	"strings"
 	"sync"
-	"sync/atomic"
-	"time"
 
 	"github.com/airbusgeo/godal"
 
@@ -315,96 +313,53 @@ func listSome(items []string, n int) string {
 
 func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 
-// checksumJob hashes the inputs on goroutines of its own while the run
-// goes on (startChecksums); join waits for it and records the sums.
-type checksumJob struct {
-	ins   []checksumInput
-	sums  []string
-	errs  []error
-	stop  atomic.Bool // set by cancel: the hashing stops at its next read
-	done  chan struct{}
-	start time.Time
-	dur   time.Duration // from start to the last file hashed
-}
-
-// checksumInput is one input file to hash, with its role in results.json.
-type checksumInput struct{ role, path string }
-
-// startChecksums starts hashing every input file (SHA-256), in the order
-// of the roles below, on up to GOMAXPROCS goroutines (the models are the
-// large ones: a billion-cell study's two models are 6.4 GB), and returns
-// at once: the hashing reads files only (when they come from disk it
-// waits on the disk), so the run reads its points and builds its family
-// meanwhile. join gives the records, and the first error in that order,
-// whatever finishes first.
-func (s *Study) startChecksums() *checksumJob {
+// checksums records the SHA-256 of every input file, in the order of
+// the roles below. The files are hashed at once on up to GOMAXPROCS
+// goroutines (the models are the large ones: a billion-cell study's two
+// models are 6.4 GB); the records and the first error reported follow
+// that order whatever finishes first.
+func (s *Study) checksums() error {
 	o := s.o
-	j := &checksumJob{done: make(chan struct{}), start: time.Now()}
+	type input struct{ role, path string }
+	var ins []input
 	for _, m := range s.models {
 		role := "model:" + m.Name
 		if m.Null {
 			role = "null:" + m.Name
 		}
-		j.ins = append(j.ins, checksumInput{role, m.Path})
+		ins = append(ins, input{role, m.Path})
 	}
-	j.ins = append(j.ins, checksumInput{"occurrences", o.Occurrences}, checksumInput{"region", o.Region})
+	ins = append(ins, input{"occurrences", o.Occurrences}, input{"region", o.Region})
 	if o.Ecoregions != "" {
-		j.ins = append(j.ins, checksumInput{"ecoregions", o.Ecoregions})
+		ins = append(ins, input{"ecoregions", o.Ecoregions})
 	}
 	for _, m := range o.Extra {
 		name, path, _ := inputs.ParseNamedPath(m)
-		j.ins = append(j.ins, checksumInput{"extra:" + name, path})
+		ins = append(ins, input{"extra:" + name, path})
 	}
-	j.sums = make([]string, len(j.ins))
-	j.errs = make([]error, len(j.ins))
-	go func() {
-		defer close(j.done)
-		sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
-		var wg sync.WaitGroup
-		for i, in := range j.ins {
-			wg.Add(1)
-			sem <- struct{}{}
-			go func() {
-				defer func() { <-sem; wg.Done() }()
-				j.sums[i], j.errs[i] = fileSHA256(in.path, &j.stop)
-			}()
+	sums := make([]string, len(ins))
+	errs := make([]error, len(ins))
+	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
+	var wg sync.WaitGroup
+	for i, in := range ins {
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer func() { <-sem; wg.Done() }()
+			sums[i], errs[i] = fileSHA256(in.path)
+		}()
+	}
+	wg.Wait()
+	for i, in := range ins {
+		if errs[i] != nil {
+			return fault.BadInput(fmt.Errorf("%s: %w", in.role, errs[i]))
 		}
-		wg.Wait()
-		j.dur = time.Since(j.start)
-	}()
-	return j
-}
-
-// cancel stops the hashing (the run failed before it needed the sums)
-// and waits for its goroutines.
-func (j *checksumJob) cancel() {
-	j.stop.Store(true)
-	<-j.done
-}
-
-// join waits for the hashing and records the sums in Results.Inputs, or
-// returns the first input (in role order) that could not be hashed as an
-// input error naming it. The log says how long the hashing took and what
-// it ran alongside.
-func (s *Study) joinChecksums(j *checksumJob, alongside string) error {
-	<-j.done
-	s.logf("input checksums (SHA-256) in %.2f s (alongside %s)", j.dur.Seconds(), alongside)
-	for i, in := range j.ins {
-		if j.errs[i] != nil {
-			return fault.BadInput(fmt.Errorf("%s: %w", in.role, j.errs[i]))
-		}
-		s.res.Inputs = append(s.res.Inputs, report.Input{Role: in.role, Path: s.recordedPath(in.path), SHA256: j.sums[i]})
+		s.res.Inputs = append(s.res.Inputs, report.Input{Role: in.role, Path: s.recordedPath(in.path), SHA256: sums[i]})
 	}
 	return nil
 }
 
-// errChecksumCanceled is what a hashing stopped by checksumJob.cancel
-// returns; no one reports it.
-var errChecksumCanceled = errors.New("checksum canceled")
-
-// fileSHA256 returns the hex SHA-256 of the file at path; it stops with
-// errChecksumCanceled when stop is set.
-func fileSHA256(path string, stop *atomic.Bool) (string, error) {
+func fileSHA256(path string) (string, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return "", err
@@ -413,19 +368,8 @@ func fileSHA256(path string, stop *atomic.Bool) (string, error) {
 	h := sha256.New()
 	// 1 MiB reads (io.Copy would use 32 KiB through the file's WriteTo):
 	// about a tenth less CPU on a 3.2 GB model read from the page cache.
-	buf := make([]byte, 1<<20)
-	for {
-		if stop.Load() {
-			return "", errChecksumCanceled
-		}
-		n, err := f.Read(buf)
-		h.Write(buf[:n])
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return "", fmt.Errorf("read %s: %w", path, err)
-		}
+	if _, err := io.CopyBuffer(h, struct{ io.Reader }{f}, make([]byte, 1<<20)); err != nil {
+		return "", fmt.Errorf("read %s: %w", path, err)
 	}
 	return hex.EncodeToString(h.Sum(nil)), nil
 }
