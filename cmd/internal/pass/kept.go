@@ -130,8 +130,8 @@ func (kb keptBlock) at(j int) float64 {
 }
 
 // take fills b.buf with block i's stored values for b's rows when block i
-// is kept, releases it and reports whether it did. b lies in block i: the
-// same columns, its rows a range of the block's.
+// is kept, drops it from the store and reports whether it did. b lies in
+// block i: the same columns, its rows a range of the block's.
 func (k *keptBlocks) take(i int, b block) bool {
 	if k == nil || i < 0 || i >= len(k.blocks) {
 		return false

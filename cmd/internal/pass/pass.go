@@ -180,8 +180,8 @@ func (r *Raster) Close() error {
 // Score to take instead of reading and decoding them again; maxBytes <= 0
 // keeps none and drops those kept. The values the pass sees are the same
 // either way: a kept block holds exactly what the pass's read of it gives.
-// Score releases each kept block once it has scored it, and the rest when
-// it returns.
+// Score drops each kept block once it has taken it, and unmaps their
+// memory when it returns.
 func (r *Raster) KeepBlocks(maxBytes int64, rows *RowRange) {
 	r.keep, r.keepRows = maxBytes, allRows
 	if rows != nil {
@@ -526,7 +526,7 @@ type plan struct {
 // A worker that panics (a bug) makes the pass return an *InternalError.
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
 	kept := r.kept
-	r.kept = nil // the pass releases each block it takes, and the rest when it returns
+	r.kept = nil // this pass's alone: unmapped when it returns
 	accs, st, err := score(plan{width: r.width, height: r.height, blockW: r.blockW, blockH: r.blockH, open: r.open, decode: r.decode, kept: kept},
 		g, fam, fam.Groups(), layout, opt)
 	r.reused = 0
