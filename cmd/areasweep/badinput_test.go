@@ -265,6 +265,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	}
 	occDir := filepath.Join(f.dir, "occdir.csv")
 	os.Mkdir(occDir, 0o755)
+	// A folder named like a FileGDB passes the existence check; its
+	// checksum fails (it cannot be read as a file), after the points.
+	fakeGDB := filepath.Join(f.dir, "fake.gdb")
+	os.Mkdir(fakeGDB, 0o755)
 
 	// Rasters.
 	allNoData := f.rasterWith(t, "allnodata.tif", gt, wgs, func(int) float64 { return math.NaN() })
@@ -497,6 +501,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
+		{"region checksum fails", f.withRegion(fakeGDB), 2, []string{"region", "fake.gdb", "is a directory"}, "", ""},
+		{"occurrences bad and region checksum fails", f.withRegion(fakeGDB, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n")), 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
 		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
 		{"region point", f.withRegion(pointLayer), 2, []string{"point.geojson feature 1", "point"}, "", ""},

@@ -43,8 +43,19 @@ type Raster struct {
 	scale, offset float64
 	// width, height and the block size lay out the pass's blocks.
 	width, height, blockW, blockH int
+	// narrow: every stored value is a float32 (the band's type is Byte,
+	// Int8, UInt16, Int16 or Float32), so a kept block can be float32.
+	narrow bool
 	// open gives each worker of a pass its own Source.
 	open func() (Source, error)
+	// keep is the budget (bytes) of blocks Sample keeps for the next
+	// Score, keepRows the rows that pass reads (KeepBlocks); kept holds
+	// them until that Score takes them.
+	keep     int64
+	keepRows RowRange
+	kept     *keptBlocks
+	// reused is the number of blocks the last Score took from kept.
+	reused int
 }
 
 // Source fills blocks of stored values for one worker of a pass. A GDAL
@@ -79,12 +90,18 @@ func openGDALSource(path string) (Source, error) {
 }
 
 func (s *gdalSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
-	if err := s.band.Read(x0, y0, buf[:w*h], w, h); err != nil {
-		what := "block"
-		if w == 1 && h == 1 {
-			what = "cell" // a point read by Sample
-		}
-		return fmt.Errorf("pass: %s: the %s at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, what, x0, y0, gdalmsg.Cause(err.Error()))
+	return s.read(x0, y0, w, h, buf[:w*h])
+}
+
+// readBlock32 is ReadBlock into float32 values, for a band whose values
+// are all float32 (Raster.narrow): the same values.
+func (s *gdalSource) readBlock32(x0, y0, w, h int, buf []float32) error {
+	return s.read(x0, y0, w, h, buf[:w*h])
+}
+
+func (s *gdalSource) read(x0, y0, w, h int, buf any) error {
+	if err := s.band.Read(x0, y0, buf, w, h); err != nil {
+		return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, x0, y0, gdalmsg.Cause(err.Error()))
 	}
 	return nil
 }
@@ -111,6 +128,10 @@ func Open(path string) (*Raster, error) {
 		r.scale = 1
 	}
 	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
+	switch st.DataType {
+	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
+		r.narrow = true
+	}
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
 }
@@ -147,8 +168,34 @@ func (r *Raster) decode(buf []float64) {
 	}
 }
 
-// Close closes the raster.
-func (r *Raster) Close() error { return r.ds.Close() }
+// Close closes the raster (and drops the blocks Sample kept).
+func (r *Raster) Close() error {
+	r.kept.release()
+	r.kept = nil
+	return r.ds.Close()
+}
+
+// KeepBlocks lets the next Sample keep up to maxBytes of the blocks it
+// reads, among those meeting rows (every row when nil), for the next
+// Score to take instead of reading and decoding them again; maxBytes <= 0
+// keeps none and drops those kept. The values the pass sees are the same
+// either way: a kept block holds exactly what the pass's read of it gives.
+// Score drops each kept block once it has taken it, and unmaps their
+// memory when it returns.
+func (r *Raster) KeepBlocks(maxBytes int64, rows *RowRange) {
+	r.keep, r.keepRows = maxBytes, allRows
+	if rows != nil {
+		r.keepRows = *rows
+	}
+	if maxBytes <= 0 {
+		r.kept.release()
+		r.kept = nil
+	}
+}
+
+// Reused returns the number of blocks the last Score took from those
+// Sample kept instead of reading them.
+func (r *Raster) Reused() int { return r.reused }
 
 // valid reports whether a decoded value is one to score.
 func (r *Raster) valid(v float64) bool { return !math.IsNaN(v) }
@@ -156,8 +203,9 @@ func (r *Raster) valid(v float64) bool { return !math.IsNaN(v) }
 // Sample returns the raster's value at each cell index (row*width+col) and
 // whether it is valid. Cells < 0 are reported invalid. The blocks that
 // hold cells are shared out in file order among up to GOMAXPROCS workers,
-// each with its own handle on the file (as a pass's workers), so that each
-// block is decoded once, whatever the order of the cells. A value does not
+// each with its own handle on the file (as a pass's workers); each reads
+// a block whole, as the pass does, once whatever the order of the cells,
+// and keeps it for the next Score when KeepBlocks allows. A value does not
 // depend on the worker that read it.
 func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) {
 	vals := make([]float64, len(cells))
@@ -181,6 +229,21 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	}
 	starts = append(starts, len(order))
 	nb := len(starts) - 1
+	r.kept.release()
+	r.kept = nil
+	if r.keep > 0 {
+		// The slab holds every block with a point in the kept rows, or
+		// as many as the budget allows.
+		var need int64
+		for k := range nb {
+			bi := blockOf(cells[order[starts[k]]])
+			x0, y0 := (bi%nbx)*bw, (bi/nbx)*bh
+			if h := min(bh, g.Height-y0); y0 < r.keepRows.End && y0+h > r.keepRows.First {
+				need += keptBytes(min(bw, g.Width-x0)*h, r.narrow)
+			}
+		}
+		r.kept = newKeptBlocks(r.keep, need, r.keepRows, g.Width, g.Height, bw, bh)
+	}
 	workers := min(runtime.GOMAXPROCS(0), nb)
 	errs := make([]error, max(workers, 1))
 	var wg sync.WaitGroup
@@ -194,24 +257,50 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 				return
 			}
 			defer src.Close()
-			buf := make([]float64, 1)
+			buf := make([]float64, bw*bh)
+			one := make([]float64, 1)
 			// Worker w reads a contiguous share of the blocks, in file
-			// order, a cell at a time: GDAL decodes a block once and keeps
-			// it for the next cells.
-			for _, i := range order[starts[nb*w/workers]:starts[nb*(w+1)/workers]] {
-				c := cells[i]
-				if err := src.ReadBlock(c%g.Width, c/g.Width, 1, 1, buf); err != nil {
+			// order, each whole.
+			for k := nb * w / workers; k < nb*(w+1)/workers; k++ {
+				group := order[starts[k]:starts[k+1]]
+				bi := blockOf(cells[group[0]])
+				x0, y0 := (bi%nbx)*bw, (bi/nbx)*bh
+				b := block{x0: x0, y0: y0, w: min(bw, g.Width-x0), h: min(bh, g.Height-y0)}
+				// Read into a buffer to keep for the pass when the
+				// budget allows, else into the worker's own.
+				gs, isGDAL := src.(*gdalSource)
+				kb, keep := r.kept.reserve(bi, b.y0, b.h, b.w*b.h, r.narrow && isGDAL)
+				var err error
+				switch {
+				case kb.f32 != nil:
+					err = gs.readBlock32(b.x0, b.y0, b.w, b.h, kb.f32)
+				case kb.f64 != nil:
+					err = src.ReadBlock(b.x0, b.y0, b.w, b.h, kb.f64)
+				default:
+					kb.f64 = buf[:b.w*b.h]
+					err = src.ReadBlock(b.x0, b.y0, b.w, b.h, kb.f64)
+				}
+				if err != nil {
 					errs[w] = err
 					return
 				}
-				r.decode(buf)
-				vals[i], ok[i] = buf[0], r.valid(buf[0])
+				for _, i := range group {
+					c := cells[i]
+					one[0] = kb.at((c/g.Width-y0)*b.w + c%g.Width - x0)
+					r.decode(one)
+					vals[i], ok[i] = one[0], r.valid(one[0])
+				}
+				if keep {
+					r.kept.put(bi, kb)
+				}
 			}
 		}()
 	}
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
+			r.kept.release()
+			r.kept = nil
 			return nil, nil, err
 		}
 	}
@@ -418,6 +507,9 @@ type plan struct {
 	// decode turns stored values into model values in place, NaN for no
 	// value.
 	decode func(buf []float64)
+	// kept, when set, holds blocks already read (by Sample): the pass
+	// takes those instead of reading them.
+	kept *keptBlocks
 }
 
 // Score streams the raster once and returns one accumulator per family
@@ -433,8 +525,16 @@ type plan struct {
 //
 // A worker that panics (a bug) makes the pass return an *InternalError.
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
-	return score(plan{width: r.width, height: r.height, blockW: r.blockW, blockH: r.blockH, open: r.open, decode: r.decode},
+	kept := r.kept
+	r.kept = nil // this pass's alone: unmapped when it returns
+	accs, st, err := score(plan{width: r.width, height: r.height, blockW: r.blockW, blockH: r.blockH, open: r.open, decode: r.decode, kept: kept},
 		g, fam, fam.Groups(), layout, opt)
+	r.reused = 0
+	if kept != nil {
+		r.reused = int(kept.taken.Load())
+		kept.release() // every worker is done with it
+	}
+	return accs, st, err
 }
 
 // score is one streaming pass over the blocks of p (see Raster.Score);
@@ -517,10 +617,12 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 				if ps, ok := src.(planned); ok {
 					ps.usePlan(ws)
 				}
-				if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
-					pt.err = err
-					failed.Store(true)
-					break
+				if !p.kept.take(i, b) {
+					if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
+						pt.err = err
+						failed.Store(true)
+						break
+					}
 				}
 				p.decode(b.buf)
 				if sh, ok := src.(shower); ok {

@@ -8,12 +8,15 @@
 //	         grid        from the first model; the others must be SameAs
 //	         memory      the run's estimate against the available memory
 //	         points      occurrences read, placed on the grid, sampled on the
-//	                     first model (outside / no data), thinned per cell
+//	                     first model (outside / no data), thinned per cell;
+//	                     the blocks sampled are kept for its pass
 //	         checksums   SHA-256 of every input
 //	         --out       locked, a staging folder made (package outdir)
 //	         family      extent.Build: every member's row runs
 //	Pass i   Plan        the source (raster or computed null), its values at
-//	                     the points, the layout of the accumulators
+//	                     the points (blocks decoded there are kept, up to
+//	                     keptBlockBytes, and not decoded again by the pass),
+//	                     the layout of the accumulators
 //	         sums        one streaming pass over the cells (Stream), or
 //	                     sums from elsewhere (SetSums)
 //	         Clip        after the first pass only: the family is clipped to

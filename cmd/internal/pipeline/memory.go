@@ -39,7 +39,9 @@ const blockCache = 64 << 20
 //	              + 1 + 4096) bins x 16 bytes (each member's, and the shared
 //	              sums of a block)
 //	blocks        workers x one block buffer of blockCells float64 values,
-//	              plus GDAL's 64 MB block cache
+//	              plus GDAL's 64 MB block cache, plus (added by checkMemory
+//	              for a run that scores) the keptBlockBytes of blocks a
+//	              model's sampling keeps for its pass
 //	points        about 400 bytes per occurrence record (records, lists, results)
 //	resamples     the paired analysis's memo of each model x extent's scores
 //	              on every resample (metrics: 8 (E values + thresholds + 1)
@@ -135,6 +137,9 @@ func (s *Study) checkMemory() error {
 	layout := len(s.points) + len(o.Thresholds)
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, 512*512, len(s.points))
 	est.Resamples = o.resampleMemo(o.maxExtents(), len(s.points))
+	if !o.ExtentsOnly {
+		est.Blocks += keptBlockBytes
+	}
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil

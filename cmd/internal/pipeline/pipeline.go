@@ -73,13 +73,18 @@ type Study struct {
 	// when the points are placed and reused by its pass's layout.
 	firstVals  []float64
 	firstValid []bool
-	fam        *extent.Family
-	res        *report.Results
-	dir        *outdir.Dir
-	ownDir     bool
-	stage      string
-	valid      extent.Valid // nil until known: the family is then unclipped
-	nWarn      int          // family warnings already reported
+	// first is the first model's raster, open from its sampling at the
+	// points (with the blocks it decoded there) until its pass plans it.
+	first *pass.Raster
+	// streams: the passes read their sums with Stream (SetSums clears it).
+	streams bool
+	fam     *extent.Family
+	res     *report.Results
+	dir     *outdir.Dir
+	ownDir  bool
+	stage   string
+	valid   extent.Valid // nil until known: the family is then unclipped
+	nWarn   int          // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator
@@ -105,7 +110,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if s.log == nil {
 		s.log = &Log{}
 	}
-	s.sums = (*Study).Stream
+	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
 	for _, step := range []func() error{
 		s.checkFiles,
@@ -124,6 +129,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if s.dir == nil {
 		var err error
 		if s.dir, err = outdir.Open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
+			s.Close() // the first model's raster
 			return nil, err
 		}
 	}
@@ -141,6 +147,10 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 // Close removes the staging folder unless Finish moved it into place; it
 // is safe to call more than once.
 func (s *Study) Close() {
+	if s.first != nil {
+		s.first.Close()
+		s.first = nil
+	}
 	if s.dir != nil {
 		s.dir.Abort() // nothing once finished
 	}

@@ -180,11 +180,18 @@ func (s *Study) readPoints() error {
 	if err != nil {
 		return fault.BadInput(err)
 	}
-	defer r.Close()
+	if !o.ExtentsOnly {
+		// The blocks the points lie in are decoded here: kept (within
+		// keptBlockBytes), they serve the first pass, which takes this
+		// raster over (planModel).
+		r.KeepBlocks(keptBlockBytes, nil)
+	}
 	pointVals, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
+		r.Close()
 		return fault.BadInput(err)
 	}
+	s.first = r
 	if o.ExtentsOnly {
 		bar := s.progress("reading "+s.models[0].Name+" (valid cells)", r.Blocks())
 		s.valid, err = r.ReadValid(g, bar.update)

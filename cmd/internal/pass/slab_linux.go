@@ -1,0 +1,6 @@
+package pass
+
+import "syscall"
+
+// madvHugepage is MADV_HUGEPAGE.
+const madvHugepage = syscall.MADV_HUGEPAGE
