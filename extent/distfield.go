@@ -100,10 +100,9 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 							if near == nil && !math.IsInf(hi, 1) {
 								// The sites that may be nearest to some
 								// cell of the tile serve its quarters.
-								ix.NearSites(&fl.centre, hi+2*rho, &steps.outer)
-								near = &steps.outer
-								if near.Len() > maxNear {
-									near = &steps.none
+								near = &steps.none
+								if ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
+									near = &steps.outer
 								}
 							}
 							tm, cm := (t0+t1)/2, (c0+c1)/2
@@ -467,8 +466,7 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 // listNear lists the sites within radius of pt, or returns nil when they
 // are more than maxNear.
 func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float64) *geodesy.Near {
-	ix.NearSites(pt, radius, &st.near)
-	if st.near.Len() > maxNear {
+	if !ix.NearSitesUpTo(pt, radius, maxNear, &st.near) {
 		return nil
 	}
 	return &st.near
