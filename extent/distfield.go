@@ -274,10 +274,9 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 		lo, hi = pts.bounds(ix, &pt, maxD+rho)
 	}
 	if !math.IsInf(hi, 1) {
+		// (lo - rho > maxD gives a gap above rho: every cut is below.)
 		if room, k := fl.gap(lo, hi); room > rho {
 			cls, cellRoom = k, room-rho
-		} else if lo-rho > maxD {
-			// Beyond every cut with no room known.
 		} else if room+(hi-lo) <= rho && hi-rho <= maxD {
 			// The exact distance lies in [lo, hi], so its gap from the
 			// cuts is at most room + (hi - lo), and it is at most hi: it
