@@ -152,6 +152,43 @@ func BenchmarkBuildStudy(b *testing.B) {
 	}
 }
 
+// BenchmarkWriteGeoPackageStudy measures writing extents.gpkg
+// (WriteGeoPackage: outlines traced from the runs, then the GeoPackage)
+// for the families of 13 and 60 extents of BenchmarkBuildStudy, on the
+// study named by AREASWEEP_BENCH_STUDY (skipped when unset), in process
+// CPU time per write.
+func BenchmarkWriteGeoPackageStudy(b *testing.B) {
+	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
+	if dir == "" {
+		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
+	}
+	Configure()
+	g, err := OpenGrid(filepath.Join(dir, "model1.tif"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
+	for _, n := range []int{13, 60} {
+		region, points := benchfamily.Buffers(n)
+		spec := Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
+		f, err := Build(g, nil, spec, trainCells, testCells)
+		if err != nil {
+			b.Fatal(err)
+		}
+		tmp := b.TempDir()
+		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
+			c0 := processCPU()
+			for i := 0; i < b.N; i++ {
+				if err := f.WriteGeoPackage(filepath.Join(tmp, fmt.Sprintf("%d-%d.gpkg", b.N, i))); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric((processCPU()-c0)/float64(b.N), "cpu-s/op")
+		})
+	}
+}
+
 // benchPoints reads a sweepbench occurrence file (longitude,latitude,role
 // with a header): the training points and the grid cells of both roles.
 func benchPoints(b *testing.B, g *Grid, path string) (train []LonLat, trainCells, testCells []int) {

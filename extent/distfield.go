@@ -41,12 +41,17 @@ const walkSide = 8
 //     tile; the exact distance is measured only when it could (some value
 //     of [lo, hi] would settle it), which is rare: the bounds are far
 //     narrower than rho;
+//   - a tile that is split lists the few sites that may be nearest to
+//     some cell of it (geodesy.Near: within hi + 2 rho of its centre);
+//     when they are at most maxNear, its quarters are bounded against
+//     them (Near.QuickBounds: the smallest chords, no tree search);
 //   - a tile of walkSide cells or fewer a side that one query does not
 //     settle is walked cell by cell (walkTile): a cell takes the class of a
 //     neighbour already classified while the neighbour's room (its gap to
 //     the nearest cut) exceeds the step between them, and is queried
-//     otherwise, against the few sites that may be nearest to some cell of
-//     the tile (geodesy.Near) when they are few.
+//     otherwise, against the listed sites when they are few. Rooms pass
+//     across tile edges: a tile settled whole gives its cells the room
+//     its centre's gap leaves beyond rho.
 //
 // The cost so stays near the buffers' edges instead of over their area,
 // and all cuts share one field: a cell is measured exactly only when its
@@ -68,12 +73,13 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 				lons[k] = make([]float64, g.Width)
 				lats[k] = make([]float64, g.Width)
 			}
-			fl := &field{cuts: cuts, maxD: maxD, w: g.Width, cls: make([]uint16, tileSide*g.Width)}
+			fl := &field{cuts: cuts, maxD: maxD, w: g.Width, cls: make([]uint16, tileSide*g.Width), room: make([]float64, tileSide*g.Width)}
 			open := make([]int32, len(cuts))
 			rhos := map[[3]int]float64{}
 			pts := &bandPoints{lons: lons, lats: lats, rows: make([]geodesy.Parallel, tileSide), hint: -1, reach: reach}
 			for r0 := range bands {
 				clear(rhos)
+				clear(fl.room)
 				fl.band = r0
 				r1 := min(r0+tileSide, g.Height)
 				for r := r0; r < r1; r++ {
@@ -81,28 +87,36 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 					pts.prepareRow(g, r, k)
 				}
 				steps.measure(g, pts, r1-r0)
-				var classify func(t0, t1, c0, c1 int)
-				classify = func(t0, t1, c0, c1 int) {
+				var classify func(t0, t1, c0, c1 int, near *geodesy.Near)
+				classify = func(t0, t1, c0, c1 int, near *geodesy.Near) {
 					hi, rho := math.Inf(1), 0.0
 					if t1-t0 > 2 && c1-c0 > 2 {
 						var ok bool
-						ok, hi, rho = b.wholeTile(ix, fl, pts, t0, t1, c0, c1, rhos)
+						ok, hi, rho = b.wholeTile(ix, fl, pts, near, t0, t1, c0, c1, rhos)
 						if ok {
 							return
 						}
 						if t1-t0 > walkSide && c1-c0 > walkSide {
+							if near == nil && !math.IsInf(hi, 1) {
+								// The sites that may be nearest to some
+								// cell of the tile serve its quarters.
+								near = &steps.none
+								if ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
+									near = &steps.outer
+								}
+							}
 							tm, cm := (t0+t1)/2, (c0+c1)/2
-							classify(t0, tm, c0, cm)
-							classify(t0, tm, cm, c1)
-							classify(tm, t1, c0, cm)
-							classify(tm, t1, cm, c1)
+							classify(t0, tm, c0, cm, near)
+							classify(t0, tm, cm, c1, near)
+							classify(tm, t1, c0, cm, near)
+							classify(tm, t1, cm, c1, near)
 							return
 						}
 					}
-					walkTile(ix, fl, pts, steps, t0, t1, c0, c1, hi, rho)
+					walkTile(ix, fl, pts, steps, near, t0, t1, c0, c1, hi, rho)
 				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
-					classify(r0, r1, c0, min(c0+tileSide, g.Width))
+					classify(r0, r1, c0, min(c0+tileSide, g.Width), nil)
 				}
 				for r := r0; r < r1; r++ {
 					k := r - r0
@@ -156,6 +170,14 @@ type field struct {
 	w    int      // grid width
 	band int      // the band's first grid row
 	cls  []uint16 // band row k, column c at k*w + c
+	// room of each classified cell of the band (same layout): d(x) lies
+	// in an interval I with every value within room of I in the cell's
+	// class; 0 where unknown (cells not yet classified, cells classified
+	// by exact distances on a cut, cells beyond every cut without a
+	// bound).
+	room []float64
+	// centre is the point of the last tile centre wholeTile bounded.
+	centre geodesy.Point
 }
 
 // gap is classGap for the field's cuts.
@@ -163,14 +185,16 @@ func (f *field) gap(lo, hi float64) (room float64, cls int) {
 	return classGap(f.cuts, lo, hi)
 }
 
-// fill gives the class of d to the cells of grid rows [r0, r1), columns
-// [c0, c1).
-func (f *field) fill(r0, r1, c0, c1 int, cls int) {
+// fill gives class cls and room room to the cells of grid rows [r0, r1),
+// columns [c0, c1).
+func (f *field) fill(r0, r1, c0, c1 int, cls int, room float64) {
 	k := uint16(cls)
 	for r := r0; r < r1; r++ {
 		row := f.cls[(r-f.band)*f.w:]
+		rm := f.room[(r-f.band)*f.w:]
 		for c := c0; c < c1; c++ {
 			row[c] = k
+			rm[c] = room
 		}
 	}
 }
@@ -202,7 +226,7 @@ func classGap(cuts []float64, lo, hi float64) (gap float64, cls int) {
 // of the field's band. When it did not, hi bounds the centre
 // cell's distance from above and rho the distance from the centre cell to
 // any cell of the tile (hi is +Inf when either is unknown).
-func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
+func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
 	g := b.g
 	band, maxD := fl.band, fl.maxD
 	lons, lats := pts.lons, pts.lats
@@ -237,29 +261,39 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, r0, r
 	}
 	// Bounds from the chord stage settle most tiles without a geodesic;
 	// any value in [lo, hi] is then in the class of every cell.
-	cls := len(fl.cuts)
+	// A cell x of the tile has d(x) within rho of the centre's interval:
+	// its room is the interval's gap less rho (0 when unknown).
+	cls, cellRoom := len(fl.cuts), 0.0
 	pt := pts.at(kc, cc)
-	lo, hi := pts.bounds(ix, &pt, maxD+rho)
-	if !math.IsInf(hi, 1) && !(lo-rho > maxD) {
+	fl.centre = pt
+	lo, hi, ok := 0.0, 0.0, false
+	if near != nil {
+		lo, hi, ok = near.QuickBounds(&pt)
+	}
+	if !ok {
+		lo, hi = pts.bounds(ix, &pt, maxD+rho)
+	}
+	if !math.IsInf(hi, 1) {
+		// (lo - rho > maxD gives a gap above rho: every cut is below.)
 		if room, k := fl.gap(lo, hi); room > rho {
-			cls = k
+			cls, cellRoom = k, room-rho
 		} else if room+(hi-lo) <= rho && hi-rho <= maxD {
 			// The exact distance lies in [lo, hi], so its gap from the
 			// cuts is at most room + (hi - lo), and it is at most hi: it
 			// would not settle the tile either.
-			return false, math.Inf(1), 0
+			return false, hi, rho
 		} else {
 			_, d := ix.NearestAt(&pt, maxD+rho)
 			room, k := fl.gap(d, d)
 			if !(d-rho > maxD) && !(room > rho) {
-				return false, math.Inf(1), 0
+				return false, d, rho
 			}
 			if !(d-rho > maxD) {
-				cls = k
+				cls, cellRoom = k, room-rho
 			}
 		}
 	}
-	fl.fill(r0, r1, c0, c1, cls)
+	fl.fill(r0, r1, c0, c1, cls, cellRoom)
 	return true, hi, rho
 }
 
@@ -284,57 +318,59 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // takes the largest room offered by its left, upper-left, upper and
 // upper-right neighbours (on latitude-longitude grids, where those steps
 // are the same along a row; elsewhere only the left one, measured) and is
-// queried when none is left. Near a cut the rooms are small and every cell
-// is queried; a little way off, one query settles a cone of cells below
-// and to the right. tileHi and tileRho are wholeTile's for this tile, or
-// +Inf and 0 (see nearSites). Cells outside the reach box (pts.in) are
-// farther than maxD.
-func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, t0, t1, c0, c1 int, tileHi, tileRho float64) {
-	n := c1 - c0
-	band, maxD, m := fl.band, fl.maxD, len(fl.cuts)
-	near := st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho)
-	prevD, prevRoom := st.prevD[:n], st.prevRoom[:n]
-	curD, curRoom := st.curD[:n], st.curRoom[:n]
+// queried when none is left. The neighbours may lie in tiles of the band
+// classified before (walked, or settled whole with the room of wholeTile),
+// so rooms pass across tile edges; cells not classified yet have room 0.
+// Near a cut the rooms are small and every cell is queried; a little way
+// off, one query settles a cone of cells below and to the right. tileHi
+// and tileRho are wholeTile's for this tile, or +Inf and 0 (see
+// nearSites); the tile's sites are listed at its first query. Cells
+// outside the reach box (pts.in) are farther than maxD.
+func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
+	band, maxD, m, w := fl.band, fl.maxD, len(fl.cuts), fl.w
+	listed := near != nil
 	for r := t0; r < t1; r++ {
 		k := r - band
 		lons, lats := pts.lons[k], pts.lats[k]
 		hs := st.h[k]
-		up := r > t0 && st.v[k-1] >= 0
+		up := k > 0 && st.v[k-1] >= 0
 		vs, ds := 0.0, 0.0
+		var prevCls []uint16
+		var prevRoom []float64
 		if up {
 			vs, ds = st.v[k-1], st.diag[k-1]
+			prevCls, prevRoom = fl.cls[(k-1)*w:k*w], fl.room[(k-1)*w:k*w]
 		}
-		row := fl.cls[k*fl.w : (k+1)*fl.w]
-		for i := 0; i < n; i++ {
-			c := c0 + i
-			curRoom[i] = -1
+		row, rooms := fl.cls[k*w:(k+1)*w], fl.room[k*w:(k+1)*w]
+		for c := c0; c < c1; c++ {
+			rooms[c] = 0
 			if !pts.in(k, c) {
 				row[c] = uint16(m)
 				continue
 			}
 			// The largest room a neighbour passes on.
-			room, d := 0.0, int32(0)
-			if i > 0 && curRoom[i-1] > 0 {
+			room, d := 0.0, uint16(0)
+			if c > 0 && rooms[c-1] > 0 {
 				step := hs
 				if step < 0 {
 					step = geodesy.Distance(lats[c-1], lons[c-1], lats[c], lons[c])
 				}
-				if g := curRoom[i-1] - step; g > room {
-					room, d = g, curD[i-1]
+				if g := rooms[c-1] - step; g > room {
+					room, d = g, row[c-1]
 				}
 			}
 			if up {
-				if g := prevRoom[i] - vs; g > room {
-					room, d = g, prevD[i]
+				if g := prevRoom[c] - vs; g > room {
+					room, d = g, prevCls[c]
 				}
-				if i > 0 {
-					if g := prevRoom[i-1] - ds; g > room {
-						room, d = g, prevD[i-1]
+				if c > 0 {
+					if g := prevRoom[c-1] - ds; g > room {
+						room, d = g, prevCls[c-1]
 					}
 				}
-				if i+1 < n {
-					if g := prevRoom[i+1] - ds; g > room {
-						room, d = g, prevD[i+1]
+				if c+1 < w {
+					if g := prevRoom[c+1] - ds; g > room {
+						room, d = g, prevCls[c+1]
 					}
 				}
 			}
@@ -342,10 +378,13 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, t0, 
 				// Bounds first; the exact distance only when a cut lies
 				// between them. Any value in [lo, hi] is then in the
 				// cell's class.
+				if !listed {
+					near, listed = st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho), true
+				}
 				pt := pts.at(k, c)
 				lo, hi, ok := 0.0, 0.0, false
 				if near != nil {
-					lo, hi, ok = near.Bounds(&pt)
+					lo, hi, ok = near.QuickBounds(&pt)
 				}
 				if !ok {
 					lo, hi = pts.bounds(ix, &pt, maxD)
@@ -364,13 +403,11 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, t0, 
 					}
 					room, k = fl.gap(s, s)
 				}
-				d = int32(k)
+				d = uint16(k)
 			}
-			row[c] = uint16(d)
-			curD[i], curRoom[i] = d, room
+			row[c] = d
+			rooms[c] = room
 		}
-		prevD, curD = curD, prevD
-		prevRoom, curRoom = curRoom, prevRoom
 	}
 }
 
@@ -379,11 +416,11 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, t0, 
 // elsewhere, where walkTile measures the horizontal steps it needs and
 // passes no room between rows), and walkTile's scratch.
 type bandSteps struct {
-	h                 []float64 // band row k: between horizontal neighbours
-	v, diag           []float64 // between band rows k and k+1: vertical, diagonal neighbours
-	prevD, curD       []int32   // classes of walkTile's previous and current row
-	prevRoom, curRoom []float64
-	near              geodesy.Near
+	h       []float64 // band row k: between horizontal neighbours
+	v, diag []float64 // between band rows k and k+1: vertical, diagonal neighbours
+	near    geodesy.Near
+	outer   geodesy.Near // the sites of a tile whose quarters are classified
+	none    geodesy.Near // empty: the tile had too many
 }
 
 // maxNear is the longest list of sites walkTile bounds its cells
@@ -428,8 +465,7 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 // listNear lists the sites within radius of pt, or returns nil when they
 // are more than maxNear.
 func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float64) *geodesy.Near {
-	ix.NearSites(pt, radius, &st.near)
-	if st.near.Len() > maxNear {
+	if !ix.NearSitesUpTo(pt, radius, maxNear, &st.near) {
 		return nil
 	}
 	return &st.near
@@ -437,8 +473,6 @@ func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float
 
 func newBandSteps() *bandSteps {
 	st := &bandSteps{h: make([]float64, tileSide), v: make([]float64, tileSide), diag: make([]float64, tileSide)}
-	st.prevD, st.curD = make([]int32, tileSide), make([]int32, tileSide)
-	st.prevRoom, st.curRoom = make([]float64, tileSide), make([]float64, tileSide)
 	return st
 }
 

@@ -1,6 +1,8 @@
 package extent
 
 import (
+	"cmp"
+	"slices"
 	"sort"
 
 	"github.com/paulmach/orb"
@@ -29,7 +31,52 @@ type gridEdge struct {
 	x0, y0, x1, y1 int32
 }
 
-func vertexKey(x, y int32) uint64 { return uint64(uint32(y))<<32 | uint64(uint32(x)) }
+// vertexIndex finds the edges leaving a vertex: the edges' numbers
+// grouped by the grid line of their start (a counting sort on y0), each
+// group sorted by x0 and, at one vertex, by number.
+type vertexIndex struct {
+	edges []gridEdge
+	start []int32 // line y's edges are order[start[y]:start[y+1]]
+	order []int32
+}
+
+// newVertexIndex indexes edges whose starts lie on grid lines 0..height.
+func newVertexIndex(edges []gridEdge, height int) *vertexIndex {
+	vi := &vertexIndex{edges: edges, start: make([]int32, height+2), order: make([]int32, len(edges))}
+	for _, e := range edges {
+		vi.start[e.y0+1]++
+	}
+	for y := 1; y < len(vi.start); y++ {
+		vi.start[y] += vi.start[y-1]
+	}
+	pos := append([]int32(nil), vi.start...)
+	for i, e := range edges {
+		vi.order[pos[e.y0]] = int32(i)
+		pos[e.y0]++
+	}
+	for y := 0; y+1 < len(vi.start); y++ {
+		line := vi.order[vi.start[y]:vi.start[y+1]]
+		slices.SortFunc(line, func(a, b int32) int {
+			return cmp.Or(cmp.Compare(edges[a].x0, edges[b].x0), cmp.Compare(a, b))
+		})
+	}
+	return vi
+}
+
+// leaving returns the numbers of the (at most two) edges leaving vertex
+// (x, y), smaller first, -1 for none.
+func (vi *vertexIndex) leaving(x, y int32) [2]int32 {
+	o := [2]int32{-1, -1}
+	if y < 0 || int(y)+1 >= len(vi.start) {
+		return o
+	}
+	line := vi.order[vi.start[y]:vi.start[y+1]]
+	i := sort.Search(len(line), func(i int) bool { return vi.edges[line[i]].x0 >= x })
+	for n := 0; n < 2 && i < len(line) && vi.edges[line[i]].x0 == x; i, n = i+1, n+1 {
+		o[n] = line[i]
+	}
+	return o
+}
 
 // traceOutline returns member k's cells as polygons in cell units (x east,
 // y south from the top-left corner), one per 4-connected group of cells,
@@ -100,17 +147,7 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 			edges = append(edges, gridEdge{below[i], y, below[i], y + 1}, gridEdge{below[i+1], y + 1, below[i+1], y})
 		}
 	}
-	out := make(map[uint64][2]int32, len(edges))
-	for i, e := range edges {
-		key := vertexKey(e.x0, e.y0)
-		o, ok := out[key]
-		if !ok {
-			o = [2]int32{int32(i), -1}
-		} else {
-			o[1] = int32(i)
-		}
-		out[key] = o
-	}
+	out := newVertexIndex(edges, len(rows))
 	used := make([]bool, len(edges))
 	type ring struct {
 		pts   [][2]int32
@@ -160,7 +197,7 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 				pts = append(pts, [2]int32{e.x0, e.y0})
 			}
 			dx, dy = ndx, ndy
-			o := out[vertexKey(e.x1, e.y1)]
+			o := out.leaving(e.x1, e.y1)
 			next := o[0]
 			if o[1] >= 0 {
 				pinched = true

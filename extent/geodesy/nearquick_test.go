@@ -1,0 +1,67 @@
+package geodesy
+
+import (
+	"math/rand/v2"
+	"testing"
+)
+
+// TestNearQuickBounds: for points x within rho of a centre c, QuickBounds
+// over the sites NearSites lists within hi(c) + 2 rho brackets x's exact
+// nearest distance (Nearest), its lower bound is never above Bounds' and
+// its interval is, for most points, at most a metre wider than Bounds',
+// with sites scattered and close
+// enough that a few points have two near-equal nearest sites, at
+// distances up to about 1000 km, and beyond 3000 km (sectionUpper's
+// limit) for a few.
+func TestNearQuickBounds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 9))
+	lats := make([]float64, 200)
+	lons := make([]float64, 200)
+	for i := range lats {
+		lats[i] = 40 + 15*rng.Float64()
+		lons[i] = -5 + 25*rng.Float64()
+	}
+	ix, err := NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var n Near
+	far, tight := 0, 0
+	for q := 0; q < 400; q++ {
+		clat, clon := 30+35*rng.Float64(), -15+45*rng.Float64()
+		if q%40 == 0 {
+			clat, clon = -40*rng.Float64(), 100+20*rng.Float64() // thousands of km away
+		}
+		c := NewPoint(clat, clon)
+		const rho = 20e3
+		_, hi, _ := ix.BoundsAt(&c, 0, -1)
+		ix.NearSites(&c, hi+2*rho, &n)
+		for range 20 {
+			x := NewPoint(clat+0.09*(rng.Float64()-0.5), clon+0.12*(rng.Float64()-0.5))
+			_, d := ix.Nearest(x.Lat(), x.Lon(), 0)
+			lo, hi, ok := n.QuickBounds(&x)
+			if !ok || d < lo || d > hi {
+				t.Fatalf("(%v, %v): distance %v, QuickBounds [%v, %v] (ok %v)", x.Lat(), x.Lon(), d, lo, hi, ok)
+			}
+			blo, bhi, _ := n.Bounds(&x)
+			if lo > blo {
+				t.Fatalf("(%v, %v): QuickBounds' lower bound %v above Bounds' %v", x.Lat(), x.Lon(), lo, blo)
+			}
+			if d > 3000e3 {
+				far++
+			} else if hi-lo <= bhi-blo+1 {
+				tight++
+			}
+		}
+	}
+	if far == 0 {
+		t.Error("no point beyond 3000 km")
+	}
+	if tight < 400*20*9/10-far {
+		t.Errorf("only %d of %d intervals at most 1 m wider than Bounds'", tight, 400*20-far)
+	}
+	var empty Near
+	if _, _, ok := empty.QuickBounds(&Point{}); ok {
+		t.Error("an empty list gave bounds")
+	}
+}
