@@ -207,12 +207,22 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 			if !(math.Abs(lp) <= 90) {
 				return
 			}
-			for dc := -k; dc <= k; dc++ {
+			// The geodesics to columns -dc and dc are mirror images in
+			// the anchor's meridian: the same length, azimuths of
+			// opposite signs (geod_inverse solves for |dlon| and sets the
+			// sign of the azimuths last, and sin is odd, cos even), so
+			// one inverse serves both, bit for bit
+			// (TestStencilMirror).
+			for dc := 0; dc <= k; dc++ {
 				j := (dr+k)*p + dc + k
 				t, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*ll.dlon)
 				s.t[j] = t
 				s.sa[j], s.ca[j] = math.Sincos(az * math.Pi / 180)
 				s.tmax = math.Max(s.tmax, t)
+				if dc > 0 {
+					jm := (dr+k)*p - dc + k
+					s.t[jm], s.sa[jm], s.ca[jm] = t, -s.sa[j], s.ca[j]
+				}
 			}
 		}
 		// Rounding of the cells' longitudes (the stencil uses dc*dlon) moves

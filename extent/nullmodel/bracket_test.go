@@ -398,3 +398,44 @@ func TestTaylorRow(t *testing.T) {
 		}
 	}
 }
+
+// TestStencilMirror checks that a stencil's columns west of the anchor,
+// which stencil takes from the mirror images of those east of it, hold
+// what geodesy.Inverse gives for them bit for bit, on rows from pole to
+// pole of grids of several cell sizes, both stencil sides.
+func TestStencilMirror(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for trial := range 40 {
+		dlon := math.Exp(r.Float64()*math.Log(1/1e-4)) * 1e-4 // 1e-4 to 1 degree
+		dlat := -dlon * (0.5 + r.Float64())
+		north := 90 - r.Float64()*dlat*-3
+		ll := &lonLat{west: -180 + 360*r.Float64(), dlon: dlon, north: north, dlat: dlat, rows: map[[2]int]*stencil{}}
+		for _, k := range []int{patchK, SuperTile / 2} {
+			p := 2*k + 1
+			rows := int(180 / -dlat / float64(p))
+			for q := range 25 {
+				pr := q * rows / 24
+				if trial%2 == 1 {
+					pr = r.IntN(rows + 1)
+				}
+				st := ll.stencil(k, pr)
+				if !st.ok {
+					continue
+				}
+				la := ll.lat(pr*p + k)
+				for dr := -k; dr <= k; dr++ {
+					lp := ll.lat(pr*p + k + dr)
+					for dc := -k; dc <= k; dc++ {
+						j := (dr+k)*p + dc + k
+						d, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*dlon)
+						sa, ca := math.Sincos(az * math.Pi / 180)
+						if math.Float64bits(d) != math.Float64bits(st.t[j]) || math.Float64bits(sa) != math.Float64bits(st.sa[j]) || math.Float64bits(ca) != math.Float64bits(st.ca[j]) {
+							t.Fatalf("trial %d, K %d, row %d (lat %v), dr %d, dc %d: stencil (%v, %v, %v), Inverse (%v, %v, %v)",
+								trial, k, pr, la, dr, dc, st.t[j], st.sa[j], st.ca[j], d, sa, ca)
+						}
+					}
+				}
+			}
+		}
+	}
+}
