@@ -125,6 +125,15 @@ func TestBracketContainsDistance(t *testing.T) {
 					t.Fatalf("floor edges: bracket of cell %d differs", i%len(lo))
 				}
 			}
+			// And one that lists its sub-bins' edges too.
+			sb := subEdgeBins{eb, FloorEdges(layout.l.Values(), layout.FloorScale()*SubFloor)}
+			f.Bracket(0, 0, tc.w, tc.h, nil, sb, lo, hi)
+			checkBrackets(t, "sub-bin edges", want, lo, hi, nil, layout)
+			for i, l := range append(append([]float64{}, lo...), hi...) {
+				if math.Float64bits(l) != math.Float64bits(ref[i]) {
+					t.Fatalf("sub-bin edges: bracket of cell %d differs", i%len(lo))
+				}
+			}
 		})
 	}
 }
@@ -136,6 +145,78 @@ type edgeBins struct {
 }
 
 func (b edgeBins) FloorEdges() []float64 { return b.edges }
+
+// subEdgeBins is edgeBins with the sub-bins' edges (SubEdgeBinner).
+type subEdgeBins struct {
+	edgeBins
+	sub []float64
+}
+
+func (b subEdgeBins) SubFloorEdges() []float64 { return b.sub }
+
+// TestSubQuick checks subQuick, which places a bracket by the sub-bins'
+// edges (SubEdgeBinner) without asking the Binner, against Locate and
+// FloorBin: whenever it says yes, both ends of the values [-hi, -lo]
+// share their exact bin and floor bin. Layouts of clustered values (many
+// floor bins with several edges), brackets of every width around them;
+// it must say yes often where the floor bin holds several edges.
+func TestSubQuick(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	yesAll, severalAll := 0, 0
+	for trial := range 20 {
+		var vals []float64
+		for range 1 + r.IntN(40) {
+			c := -math.Exp(r.Float64() * 14)
+			for range 1 + r.IntN(30) {
+				vals = append(vals, c*(1+0.01*r.NormFloat64()))
+			}
+		}
+		l, err := metrics.NewLayout(vals, 1024, metrics.WithHistFloor(metrics.FloorExp(2e6/1024)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fb := newFloorBins(l)
+		s := fb.FloorScale()
+		eb := subEdgeBins{edgeBins{fb, FloorEdges(l.Values(), s)}, FloorEdges(l.Values(), s*SubFloor)}
+		b := bracketer{bins: eb, cellLo: math.NaN(), cellHi: math.NaN(), scale: s, binW: 1 / s}
+		b.setEdges()
+		if b.sub == nil {
+			t.Fatal("no sub-bins")
+		}
+		yes, several := 0, 0
+		for range 20000 {
+			d := -vals[r.IntN(len(vals))] * (1 + 0.05*r.NormFloat64())
+			if d < 0 {
+				continue
+			}
+			lo := d * (1 - math.Exp(-3-10*r.Float64()))
+			hi := d * (1 + math.Exp(-3-10*r.Float64()))
+			// Ends on an edge: the edge's own bin.
+			switch v := -vals[r.IntN(len(vals))]; r.IntN(4) {
+			case 0:
+				lo, hi = v, v*(1+math.Exp(-3-10*r.Float64()))
+			case 1:
+				lo, hi = v*(1-math.Exp(-3-10*r.Float64())), v
+			}
+			if !b.subQuick(lo, hi) {
+				continue
+			}
+			yes++
+			if c := int(math.Ceil(lo * s)); c < len(b.edges) && math.IsNaN(b.edges[c]) {
+				several++
+			}
+			if l.Locate(0-hi) != l.Locate(0-lo) || l.FloorBin(0-hi) != l.FloorBin(0-lo) {
+				t.Fatalf("trial %d: subQuick places [%v, %v], whose values have bins %d and %d, floor bins %d and %d",
+					trial, lo, hi, l.Locate(0-hi), l.Locate(0-lo), l.FloorBin(0-hi), l.FloorBin(0-lo))
+			}
+		}
+		yesAll, severalAll = yesAll+yes, severalAll+several
+	}
+	if yesAll < 1000 || severalAll < 1000 {
+		t.Errorf("subQuick placed %d brackets, %d in floor bins of several edges: the test tests little", yesAll, severalAll)
+	}
+	t.Logf("subQuick placed %d brackets, %d in floor bins of several edges", yesAll, severalAll)
+}
 
 // TestFloorEdges checks FloorEdges against the layout's own bins: in each
 // floor bin -c of the slice, +Inf means the bin lies inside one open exact
