@@ -150,15 +150,21 @@ const maxConstRow = 1 << 26
 
 // Set prepares the cells: distance dist[i] (m; NaN: the cell is skipped)
 // and area weight weights[i] >= 0.
-func (r *Row) Set(dist []float64, weights []int64) { r.set(dist, false, weights) }
+func (r *Row) Set(dist []float64, weights []int64) { r.set(dist, false, weights, false) }
 
 // SetValues is Set on the distances 0 - vals[i]: the null model's values
 // (minus the distances), without a copy.
-func (r *Row) SetValues(vals []float64, weights []int64) { r.set(vals, true, weights) }
+func (r *Row) SetValues(vals []float64, weights []int64) { r.set(vals, true, weights, false) }
 
-// set is Set on dist, or on 0 - dist[i] when neg. Rows of one weight keep
-// no weight per cell (the histogram adds w0).
-func (r *Row) set(dist []float64, neg bool, weights []int64) {
+// SetValuesEqual is SetValues on weights that the caller knows are all
+// equal (a latitude-longitude row's): the same row, without comparing
+// them.
+func (r *Row) SetValuesEqual(vals []float64, weights []int64) { r.set(vals, true, weights, true) }
+
+// set is Set on dist, or on 0 - dist[i] when neg; equal says the weights
+// are all equal. Rows of one weight keep no weight per cell (the
+// histogram adds w0).
+func (r *Row) set(dist []float64, neg bool, weights []int64, equal bool) {
 	n := len(dist)
 	if cap(r.bin) < n || cap(r.pa) < n+1 {
 		r.bin, r.w = make([]int32, n), make([]int64, n)
@@ -167,8 +173,10 @@ func (r *Row) set(dist []float64, neg bool, weights []int64) {
 	r.bin, r.w = r.bin[:n], r.w[:n]
 	r.pa, r.ph, r.pl, r.pm = r.pa[:n+1], r.ph[:n+1], r.pl[:n+1], r.pm[:n+1]
 	one := n > 0 && n < maxConstRow && weights[0] >= 0
-	for _, w := range weights[:n] {
-		one = one && w == weights[0]
+	if !equal {
+		for _, w := range weights[:n] {
+			one = one && w == weights[0]
+		}
 	}
 	r.constW = one
 	var area int64
@@ -315,19 +323,60 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 		}
 		hs := hists[:n]
 		bins := r.bin[lo:hi]
-		for i, j := range bins {
-			if j < 0 {
-				continue
-			}
-			w := int64(r.w0)
-			if !r.constW {
-				w = r.w[i+lo]
-			}
-			for _, h := range hs {
-				h[j] += w
+		switch {
+		case r.constW && n <= 3:
+			addHistConst(hs, bins, int64(r.w0))
+		default:
+			for i, j := range bins {
+				if j < 0 {
+					continue
+				}
+				w := int64(r.w0)
+				if !r.constW {
+					w = r.w[i+lo]
+				}
+				for _, h := range hs {
+					h[j] += w
+				}
 			}
 		}
 		ks = ks[n:]
+	}
+}
+
+// addHistConst adds w at bin j of each of the 2 or 3 histograms hs (each
+// histLen long) for every bin j >= 0 of bins: AddAll's walk for a row of
+// one weight, one loop per count with each histogram in a register and no
+// bounds check beyond j < histLen (negative bins, NaN cells, compare as
+// large unsigned values and are left out).
+func addHistConst(hs [][]int64, bins []int32, w int64) {
+	switch len(hs) {
+	case 2:
+		h0, h1 := (*[histLen]int64)(hs[0]), (*[histLen]int64)(hs[1])
+		for _, j := range bins {
+			if uint32(j) < histLen {
+				h0[j] += w
+				h1[j] += w
+			}
+		}
+	case 3:
+		h0, h1, h2 := (*[histLen]int64)(hs[0]), (*[histLen]int64)(hs[1]), (*[histLen]int64)(hs[2])
+		for _, j := range bins {
+			if uint32(j) < histLen {
+				h0[j] += w
+				h1[j] += w
+				h2[j] += w
+			}
+		}
+	default:
+		for _, h := range hs {
+			h := (*[histLen]int64)(h)
+			for _, j := range bins {
+				if uint32(j) < histLen {
+					h[j] += w
+				}
+			}
+		}
 	}
 }
 

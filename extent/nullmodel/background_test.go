@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/big"
 	"math/rand/v2"
+	"reflect"
 	"slices"
 	"testing"
 )
@@ -168,18 +169,23 @@ func TestDistBin(t *testing.T) {
 
 // TestTallyAddAll: rows added with AddAll to sets of extents (more
 // distinct sets than a partial sum keeps as classes, so both ways are
-// taken, and sets in different orders) encode byte for byte as the same
-// rows added extent by extent with Add.
+// taken, and sets in different orders, of up to 10 extents) encode byte
+// for byte as the same rows added extent by extent with Add; half the
+// rows have one weight (the walk of such rows has loops of its own).
 func TestTallyAddAll(t *testing.T) {
 	r := rand.New(rand.NewPCG(31, 32))
 	var all, each Background
 	sets := 0
 	seen := map[string]bool{}
-	for range 200 {
+	for range 400 {
 		n := 1 + r.IntN(60)
 		d, w := make([]float64, n), make([]int64, n)
+		one := r.IntN(2) == 0
 		for i := range d {
 			d[i], w[i] = math.Exp(1+12*r.Float64()), 1+r.Int64N(1e9)
+			if one {
+				w[i] = w[0]
+			}
 			if r.IntN(20) == 0 {
 				d[i] = math.NaN()
 			}
@@ -187,7 +193,7 @@ func TestTallyAddAll(t *testing.T) {
 		var row Row
 		row.Set(d, w)
 		var ks []int
-		for _, k := range r.Perm(7)[:r.IntN(5)] {
+		for _, k := range r.Perm(12)[:r.IntN(11)] {
 			ks = append(ks, k)
 		}
 		if key := fmt.Sprint(ks); !seen[key] && len(ks) > 1 {
@@ -281,6 +287,37 @@ func TestRowOneWeight(t *testing.T) {
 		got.Add(got, new(big.Int).SetUint64(e.sumLo))
 		if got.Cmp(want[k]) != 0 || e.area != area[k] {
 			t.Errorf("extent %d: sum %v area %d, cell by cell %v and %d", k, got, e.area, want[k], area[k])
+		}
+	}
+}
+
+// TestRowSetValuesEqual checks that SetValuesEqual, which takes the
+// weights' equality on trust, prepares the same row as SetValues, which
+// compares them: rows of one weight (zero among them) with NaN cells,
+// and rows with distances beyond 2^27 m (which need 128-bit sums).
+func TestRowSetValuesEqual(t *testing.T) {
+	r := rand.New(rand.NewPCG(41, 42))
+	for trial := range 300 {
+		n := r.IntN(70)
+		vals, w := make([]float64, n), make([]int64, n)
+		w0 := r.Int64N(1e12)
+		if trial%10 == 0 {
+			w0 = 0
+		}
+		for i := range vals {
+			vals[i], w[i] = 0-math.Exp(12*r.Float64()), w0
+			if trial%7 == 0 && r.IntN(5) == 0 {
+				vals[i] = -2e8 * r.Float64()
+			}
+			if r.IntN(15) == 0 {
+				vals[i] = math.NaN()
+			}
+		}
+		var a, b Row
+		a.SetValues(vals, w)
+		b.SetValuesEqual(vals, w)
+		if !reflect.DeepEqual(a, b) {
+			t.Fatalf("trial %d: SetValuesEqual %+v, SetValues %+v", trial, b, a)
 		}
 	}
 }

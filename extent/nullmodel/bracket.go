@@ -41,6 +41,22 @@ type EdgeBinner interface {
 	FloorEdges() []float64
 }
 
+// SubFloor is the number of sub-bins into which SubEdgeBinner cuts each
+// floor bin: a power of two, so that the sub-bins are the floor bins of
+// the grid of exponent e - 4, whose edges include the floor grid's.
+const SubFloor = 16
+
+// SubEdgeBinner is an EdgeBinner that also lists the exact bins' edges on
+// the grid SubFloor times finer: SubFloorEdges() is FloorEdges(values,
+// SubFloor*s) for the layout's values and its floor scale s. Bracket uses
+// it, when its Binner has it, for the brackets whose floor bin holds
+// several edges (FloorEdges' NaN), which most often lie in a sub-bin with
+// one edge or none.
+type SubEdgeBinner interface {
+	EdgeBinner
+	SubFloorEdges() []float64
+}
+
 // FloorEdges returns the FloorEdges slice of a layout whose exact bins
 // have the single values edges (any order; the open intervals between
 // them are the other bins) on the floor grid of scale s = 2^-e, up to the
@@ -207,12 +223,22 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 			if !(math.Abs(lp) <= 90) {
 				return
 			}
-			for dc := -k; dc <= k; dc++ {
+			// The geodesics to columns -dc and dc are mirror images in
+			// the anchor's meridian: the same length, azimuths of
+			// opposite signs (geod_inverse solves for |dlon| and sets the
+			// sign of the azimuths last, and sin is odd, cos even), so
+			// one inverse serves both, bit for bit
+			// (TestStencilMirror).
+			for dc := 0; dc <= k; dc++ {
 				j := (dr+k)*p + dc + k
 				t, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*ll.dlon)
 				s.t[j] = t
 				s.sa[j], s.ca[j] = math.Sincos(az * math.Pi / 180)
 				s.tmax = math.Max(s.tmax, t)
+				if dc > 0 {
+					jm := (dr+k)*p - dc + k
+					s.t[jm], s.sa[jm], s.ca[jm] = t, -s.sa[j], s.ca[j]
+				}
 			}
 		}
 		// Rounding of the cells' longitudes (the stencil uses dc*dlon) moves
@@ -408,6 +434,9 @@ type bracketer struct {
 	edges          []float64 // EdgeBinner's FloorEdges, or nil
 	nEdges         float64   // len(edges)
 	tail           bool      // the floor bins beyond edges hold no edge
+	sub            []float64 // SubEdgeBinner's SubFloorEdges, or nil
+	nSub           float64   // len(sub)
+	subScale       float64   // SubFloor * scale
 }
 
 // setEdges takes the floor bins' edges of b.bins when it is an
@@ -418,6 +447,11 @@ func (b *bracketer) setEdges() {
 		b.tail = b.edges != nil
 	}
 	b.nEdges = float64(len(b.edges))
+	if sb, ok := b.bins.(SubEdgeBinner); ok && b.edges != nil {
+		b.sub = sb.SubFloorEdges()
+		b.nSub = float64(len(b.sub))
+		b.subScale = b.scale * SubFloor
+	}
 }
 
 // anchorSite is a site measured at a patch's anchor: its index, exact
@@ -977,7 +1011,19 @@ func sortSites(m []anchorSite) {
 // same bins (sameBins). Callers write quick(lo, hi) || settled(lo, hi):
 // quick is small enough to be inlined and decides most brackets alone.
 func (b *bracketer) settled(lo, hi float64) bool {
-	return hi-lo <= 2*BracketTol*lo && b.sameBins(lo, hi)
+	return hi-lo <= 2*BracketTol*lo && (b.subQuick(lo, hi) || b.sameBins(lo, hi))
+}
+
+// subQuick reports true only when sameBins does, without asking the
+// Binner: when both ends of the bracket share a sub-bin of the floor grid
+// (SubEdgeBinner; sub-bins nest in the floor bins) and, by the sub-bin's
+// edge, an exact bin, as quick on the floor grid. With x = lo s' and
+// s' = SubFloor s, the sub-bins of -hi and -lo are -ceil(hi s') and
+// -ceil(x), equal iff hi s' <= ceil(x). A false says nothing.
+func (b *bracketer) subQuick(lo, hi float64) bool {
+	x := lo * b.subScale
+	c := math.Ceil(x)
+	return c < b.nSub && x >= 0x1p-1000 && hi*b.subScale <= c && (0-lo < b.sub[int(c)] || 0-hi > b.sub[int(c)])
 }
 
 // quick reports true only when settled does, without a call: when the

@@ -125,6 +125,15 @@ func TestBracketContainsDistance(t *testing.T) {
 					t.Fatalf("floor edges: bracket of cell %d differs", i%len(lo))
 				}
 			}
+			// And one that lists its sub-bins' edges too.
+			sb := subEdgeBins{eb, FloorEdges(layout.l.Values(), layout.FloorScale()*SubFloor)}
+			f.Bracket(0, 0, tc.w, tc.h, nil, sb, lo, hi)
+			checkBrackets(t, "sub-bin edges", want, lo, hi, nil, layout)
+			for i, l := range append(append([]float64{}, lo...), hi...) {
+				if math.Float64bits(l) != math.Float64bits(ref[i]) {
+					t.Fatalf("sub-bin edges: bracket of cell %d differs", i%len(lo))
+				}
+			}
 		})
 	}
 }
@@ -136,6 +145,78 @@ type edgeBins struct {
 }
 
 func (b edgeBins) FloorEdges() []float64 { return b.edges }
+
+// subEdgeBins is edgeBins with the sub-bins' edges (SubEdgeBinner).
+type subEdgeBins struct {
+	edgeBins
+	sub []float64
+}
+
+func (b subEdgeBins) SubFloorEdges() []float64 { return b.sub }
+
+// TestSubQuick checks subQuick, which places a bracket by the sub-bins'
+// edges (SubEdgeBinner) without asking the Binner, against Locate and
+// FloorBin: whenever it says yes, both ends of the values [-hi, -lo]
+// share their exact bin and floor bin. Layouts of clustered values (many
+// floor bins with several edges), brackets of every width around them;
+// it must say yes often where the floor bin holds several edges.
+func TestSubQuick(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	yesAll, severalAll := 0, 0
+	for trial := range 20 {
+		var vals []float64
+		for range 1 + r.IntN(40) {
+			c := -math.Exp(r.Float64() * 14)
+			for range 1 + r.IntN(30) {
+				vals = append(vals, c*(1+0.01*r.NormFloat64()))
+			}
+		}
+		l, err := metrics.NewLayout(vals, 1024, metrics.WithHistFloor(metrics.FloorExp(2e6/1024)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fb := newFloorBins(l)
+		s := fb.FloorScale()
+		eb := subEdgeBins{edgeBins{fb, FloorEdges(l.Values(), s)}, FloorEdges(l.Values(), s*SubFloor)}
+		b := bracketer{bins: eb, cellLo: math.NaN(), cellHi: math.NaN(), scale: s, binW: 1 / s}
+		b.setEdges()
+		if b.sub == nil {
+			t.Fatal("no sub-bins")
+		}
+		yes, several := 0, 0
+		for range 20000 {
+			d := -vals[r.IntN(len(vals))] * (1 + 0.05*r.NormFloat64())
+			if d < 0 {
+				continue
+			}
+			lo := d * (1 - math.Exp(-3-10*r.Float64()))
+			hi := d * (1 + math.Exp(-3-10*r.Float64()))
+			// Ends on an edge: the edge's own bin.
+			switch v := -vals[r.IntN(len(vals))]; r.IntN(4) {
+			case 0:
+				lo, hi = v, v*(1+math.Exp(-3-10*r.Float64()))
+			case 1:
+				lo, hi = v*(1-math.Exp(-3-10*r.Float64())), v
+			}
+			if !b.subQuick(lo, hi) {
+				continue
+			}
+			yes++
+			if c := int(math.Ceil(lo * s)); c < len(b.edges) && math.IsNaN(b.edges[c]) {
+				several++
+			}
+			if l.Locate(0-hi) != l.Locate(0-lo) || l.FloorBin(0-hi) != l.FloorBin(0-lo) {
+				t.Fatalf("trial %d: subQuick places [%v, %v], whose values have bins %d and %d, floor bins %d and %d",
+					trial, lo, hi, l.Locate(0-hi), l.Locate(0-lo), l.FloorBin(0-hi), l.FloorBin(0-lo))
+			}
+		}
+		yesAll, severalAll = yesAll+yes, severalAll+several
+	}
+	if yesAll < 1000 || severalAll < 1000 {
+		t.Errorf("subQuick placed %d brackets, %d in floor bins of several edges: the test tests little", yesAll, severalAll)
+	}
+	t.Logf("subQuick placed %d brackets, %d in floor bins of several edges", yesAll, severalAll)
+}
 
 // TestFloorEdges checks FloorEdges against the layout's own bins: in each
 // floor bin -c of the slice, +Inf means the bin lies inside one open exact
@@ -394,6 +475,47 @@ func TestTaylorRow(t *testing.T) {
 			l, h := taylorBracket(&m, ts[x], sa[x], ca[x])
 			if math.Float64bits(l) != math.Float64bits(lo[x]) || math.Float64bits(h) != math.Float64bits(hi[x]) {
 				t.Fatalf("trial %d cell %d: taylorRow [%v, %v], taylorBracket [%v, %v]", trial, x, lo[x], hi[x], l, h)
+			}
+		}
+	}
+}
+
+// TestStencilMirror checks that a stencil's columns west of the anchor,
+// which stencil takes from the mirror images of those east of it, hold
+// what geodesy.Inverse gives for them bit for bit, on rows from pole to
+// pole of grids of several cell sizes, both stencil sides.
+func TestStencilMirror(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for trial := range 40 {
+		dlon := math.Exp(r.Float64()*math.Log(1/1e-4)) * 1e-4 // 1e-4 to 1 degree
+		dlat := -dlon * (0.5 + r.Float64())
+		north := 90 - r.Float64()*dlat*-3
+		ll := &lonLat{west: -180 + 360*r.Float64(), dlon: dlon, north: north, dlat: dlat, rows: map[[2]int]*stencil{}}
+		for _, k := range []int{patchK, SuperTile / 2} {
+			p := 2*k + 1
+			rows := int(180 / -dlat / float64(p))
+			for q := range 25 {
+				pr := q * rows / 24
+				if trial%2 == 1 {
+					pr = r.IntN(rows + 1)
+				}
+				st := ll.stencil(k, pr)
+				if !st.ok {
+					continue
+				}
+				la := ll.lat(pr*p + k)
+				for dr := -k; dr <= k; dr++ {
+					lp := ll.lat(pr*p + k + dr)
+					for dc := -k; dc <= k; dc++ {
+						j := (dr+k)*p + dc + k
+						d, az, _ := geodesy.Inverse(la, 0, lp, float64(dc)*dlon)
+						sa, ca := math.Sincos(az * math.Pi / 180)
+						if math.Float64bits(d) != math.Float64bits(st.t[j]) || math.Float64bits(sa) != math.Float64bits(st.sa[j]) || math.Float64bits(ca) != math.Float64bits(st.ca[j]) {
+							t.Fatalf("trial %d, K %d, row %d (lat %v), dr %d, dc %d: stencil (%v, %v, %v), Inverse (%v, %v, %v)",
+								trial, k, pr, la, dr, dc, st.t[j], st.sa[j], st.ca[j], d, sa, ca)
+						}
+					}
+				}
 			}
 		}
 	}

@@ -102,8 +102,12 @@ func (tl *rowTally) add(ms []int32, a, b int) {
 	if !tl.set {
 		// The weights the pass adds (the worker's, as scoreBlock takes
 		// them; Row copies what it keeps).
-		w, _ := tl.ws.rowWeights(tl.g, tl.row, tl.c0, tl.c0+len(tl.vals))
-		tl.r.SetValues(tl.vals, w)
+		w, rowW := tl.ws.rowWeights(tl.g, tl.row, tl.c0, tl.c0+len(tl.vals))
+		if rowW >= 0 {
+			tl.r.SetValuesEqual(tl.vals, w) // every weight is rowW
+		} else {
+			tl.r.SetValues(tl.vals, w)
+		}
 		tl.t = tl.bg.Tally()
 		tl.set = true
 	}

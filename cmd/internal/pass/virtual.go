@@ -45,18 +45,24 @@ type floorBinner struct {
 	l     *metrics.Layout
 	s     float64   // 2^-e for the floor exponent e
 	edges []float64 // nullmodel.FloorEdges of the layout's values
+	sub   []float64 // the same on the grid nullmodel.SubFloor times finer
 }
 
 // newFloorBinner returns the Binner of a floored layout.
 func newFloorBinner(l *metrics.Layout) floorBinner {
 	e, _ := l.HistFloor()
 	s := math.Ldexp(1, -e)
-	return floorBinner{l: l, s: s, edges: nullmodel.FloorEdges(l.Values(), s)}
+	vals := l.Values()
+	return floorBinner{l: l, s: s, edges: nullmodel.FloorEdges(vals, s), sub: nullmodel.FloorEdges(vals, s*nullmodel.SubFloor)}
 }
 
 // FloorEdges returns the edge of an exact bin in each floor bin (see
 // nullmodel.EdgeBinner); read-only, shared by the workers.
 func (b floorBinner) FloorEdges() []float64 { return b.edges }
+
+// SubFloorEdges returns the edge of an exact bin in each sub-bin of the
+// floor grid (see nullmodel.SubEdgeBinner); read-only, shared.
+func (b floorBinner) SubFloorEdges() []float64 { return b.sub }
 
 // Cell returns the values that share v's exact bin (see
 // nullmodel.Binner and metrics.Layout.Cell).
