@@ -125,20 +125,11 @@ func BenchmarkOutline(b *testing.B) {
 // unclipped as a run builds it. It reports the process CPU time (user +
 // system) per build, steadier than wall time on a shared machine.
 func BenchmarkBuildStudy(b *testing.B) {
-	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
-	if dir == "" {
-		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
-	}
-	Configure()
-	g, err := OpenGrid(filepath.Join(dir, "model1.tif"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer g.Close()
-	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
+	st := openBenchStudy(b)
+	defer st.g.Close()
+	g, trainCells, testCells := st.g, st.trainCells, st.testCells
 	for _, n := range []int{13, 20, 60} {
-		region, points := benchfamily.Buffers(n)
-		spec := Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
+		spec := st.spec(n)
 		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
 			b.ReportAllocs()
 			c0 := processCPU()
@@ -158,21 +149,10 @@ func BenchmarkBuildStudy(b *testing.B) {
 // study named by AREASWEEP_BENCH_STUDY (skipped when unset), in process
 // CPU time per write.
 func BenchmarkWriteGeoPackageStudy(b *testing.B) {
-	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
-	if dir == "" {
-		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
-	}
-	Configure()
-	g, err := OpenGrid(filepath.Join(dir, "model1.tif"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer g.Close()
-	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
+	st := openBenchStudy(b)
+	defer st.g.Close()
 	for _, n := range []int{13, 60} {
-		region, points := benchfamily.Buffers(n)
-		spec := Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
-		f, err := Build(g, nil, spec, trainCells, testCells)
+		f, err := Build(st.g, nil, st.spec(n), st.trainCells, st.testCells)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -187,6 +167,40 @@ func BenchmarkWriteGeoPackageStudy(b *testing.B) {
 			b.ReportMetric((processCPU()-c0)/float64(b.N), "cpu-s/op")
 		})
 	}
+}
+
+// benchStudy is the sweepbench study named by AREASWEEP_BENCH_STUDY: its
+// grid (the caller closes it), training points and the cells of both
+// roles.
+type benchStudy struct {
+	dir                   string
+	g                     *Grid
+	train                 []LonLat
+	trainCells, testCells []int
+}
+
+// openBenchStudy opens the study named by AREASWEEP_BENCH_STUDY, skipping
+// the benchmark when it is unset.
+func openBenchStudy(b *testing.B) benchStudy {
+	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
+	if dir == "" {
+		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
+	}
+	Configure()
+	g, err := OpenGrid(filepath.Join(dir, "model1.tif"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	train, trainCells, testCells := benchPoints(b, g, filepath.Join(dir, "occurrences.csv"))
+	return benchStudy{dir: dir, g: g, train: train, trainCells: trainCells, testCells: testCells}
+}
+
+// spec is the Spec of sweepbench's family of about n extents (familyFlags):
+// region buffers every 20 km in and out, point buffers every 25 km, the
+// hull, the base and the whole raster.
+func (st benchStudy) spec(n int) Spec {
+	region, points := benchfamily.Buffers(n)
+	return Spec{Region: filepath.Join(st.dir, "region.geojson"), RegionBuffersKm: region, Train: st.train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
 }
 
 // benchPoints reads a sweepbench occurrence file (longitude,latitude,role

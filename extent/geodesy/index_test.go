@@ -376,16 +376,7 @@ func TestStretchMax(t *testing.T) {
 		prev = kk
 	}
 	rng := rand.New(rand.NewPCG(5, 9))
-	lats := make([]float64, 300)
-	lons := make([]float64, 300)
-	for i := range lats {
-		lats[i] = -60 + 120*rng.Float64()
-		lons[i] = -30 + 60*rng.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, _, _ := randomIndex(t, rng, 300, -60, 120, -30, 60)
 	for q := 0; q < 3000; q++ {
 		lat, lon := -89+178*rng.Float64(), -180+360*rng.Float64()
 		maxD := []float64{0, 5e5, 3e6}[q%3]

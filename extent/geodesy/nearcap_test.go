@@ -11,16 +11,7 @@ import (
 // otherwise, with both short and long lists among the queries.
 func TestNearSitesUpTo(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 17))
-	lats := make([]float64, 400)
-	lons := make([]float64, 400)
-	for i := range lats {
-		lats[i] = 40 + 15*rng.Float64()
-		lons[i] = -5 + 25*rng.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, _, _ := randomIndex(t, rng, 400, 40, 15, -5, 25)
 	var all, capped Near
 	short, long := 0, 0
 	for q := 0; q < 500; q++ {

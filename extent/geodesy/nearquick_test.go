@@ -15,16 +15,7 @@ import (
 // limit) for a few.
 func TestNearQuickBounds(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 9))
-	lats := make([]float64, 200)
-	lons := make([]float64, 200)
-	for i := range lats {
-		lats[i] = 40 + 15*rng.Float64()
-		lons[i] = -5 + 25*rng.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, _, _ := randomIndex(t, rng, 200, 40, 15, -5, 25)
 	var n Near
 	far, tight := 0, 0
 	for q := 0; q < 400; q++ {

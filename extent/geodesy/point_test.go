@@ -13,16 +13,7 @@ import (
 // +Inf) exactly when NearestBounds does.
 func TestPointQueries(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 3))
-	lats := make([]float64, 400)
-	lons := make([]float64, 400)
-	for i := range lats {
-		lats[i] = -70 + 140*rng.Float64()
-		lons[i] = -40 + 80*rng.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, lats, _ := randomIndex(t, rng, 400, -70, 140, -40, 80)
 	hint := -1
 	for q := 0; q < 4000; q++ {
 		lat, lon := -89+178*rng.Float64(), -180+360*rng.Float64()
@@ -75,16 +66,7 @@ func TestPointQueries(t *testing.T) {
 // bound never below NearestBounds' and often much closer.
 func TestNearBounds(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 4))
-	lats := make([]float64, 300)
-	lons := make([]float64, 300)
-	for i := range lats {
-		lats[i] = 40 + 15*rng.Float64()
-		lons[i] = -5 + 25*rng.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, _, _ := randomIndex(t, rng, 300, 40, 15, -5, 25)
 	var n Near
 	listed, tighter := 0, 0
 	for q := 0; q < 300; q++ {
@@ -124,4 +106,21 @@ func TestNearBounds(t *testing.T) {
 	if _, _, ok := empty.Bounds(&Point{}); ok {
 		t.Error("an empty list gave bounds")
 	}
+}
+
+// randomIndex returns the index of n sites drawn from rng, each at a
+// latitude uniform in [lat0, lat0+dlat) and then a longitude uniform in
+// [lon0, lon0+dlon) (degrees), and the sites' coordinates.
+func randomIndex(t testing.TB, rng *rand.Rand, n int, lat0, dlat, lon0, dlon float64) (ix *Index, lats, lons []float64) {
+	lats = make([]float64, n)
+	lons = make([]float64, n)
+	for i := range lats {
+		lats[i] = lat0 + dlat*rng.Float64()
+		lons[i] = lon0 + dlon*rng.Float64()
+	}
+	ix, err := NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ix, lats, lons
 }

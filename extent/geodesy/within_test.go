@@ -14,15 +14,7 @@ import (
 // plus the 1 micrometre margin.
 func TestWithin(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
-	lats := make([]float64, 300)
-	lons := make([]float64, 300)
-	for i := range lats {
-		lats[i], lons[i] = 40+10*r.Float64(), -5+20*r.Float64()
-	}
-	ix, err := NewIndex(lats, lons)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ix, lats, lons := randomIndex(t, r, 300, 40, 10, -5, 20)
 	var got []int
 	for q := range 200 {
 		lat, lon := 38+14*r.Float64(), -8+26*r.Float64()
