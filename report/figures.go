@@ -279,6 +279,7 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	img := &image.RGBA{Pix: pixBuffers.get(4*pw*ph, 4*px(twoColumns)*px(maxHeight)), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
 	ctx := gg.NewContextForRGBA(img)
 	ctx.SetLineCapButt()
+	ctx.SetInterpolator(gridBiLinear{})
 	ctx.InvertY()
 	// NewWith paints the image with its background colour, white by
 	// default (an image option excludes UseBackgroundColor).
