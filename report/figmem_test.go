@@ -7,6 +7,7 @@ import (
 
 	xdraw "golang.org/x/image/draw"
 	"golang.org/x/image/math/f64"
+	"gonum.org/v1/plot/vg/draw"
 )
 
 // TestRenderReusedBuffers renders each figure of the sample twice in every
@@ -139,5 +140,23 @@ func TestGridBiLinearSame(t *testing.T) {
 			}
 			t.Errorf("%s: %d of %d bytes differ", tc.name, n, len(got.Pix))
 		}
+	}
+}
+
+// BenchmarkEncodePNG encodes the sample's scores figure drawn at 300 dpi.
+func BenchmarkEncodePNG(b *testing.B) {
+	r := analyzedSample(b)
+	f := metricsFigure(r)
+	c := newPNGCanvas(f.W, f.H)
+	if err := f.draw(draw.New(c)); err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(int64(len(c.img.Pix)))
+	for b.Loop() {
+		data, err := encodePNG(c.img, pngDPI)
+		if err != nil {
+			b.Fatal(err)
+		}
+		outBuffers.put(data)
 	}
 }
