@@ -111,6 +111,9 @@ func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) er
 				if err == nil {
 					err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
 				}
+				if format != "svg" { // the page inlines the SVGs
+					outBuffers.put(data)
+				}
 				errs[k][j] = err
 				if format == "svg" {
 					svgs[k] = renderedFigure{fig: f, svg: data}
@@ -151,11 +154,11 @@ var pdfOnce sync.Once
 func render(f figure, format string) ([]byte, error) {
 	if format == "png" {
 		c := newPNGCanvas(f.W, f.H)
+		defer pixBuffers.put(c.img.Pix)
 		if err := f.draw(draw.New(c)); err != nil {
 			return nil, err
 		}
 		data, err := encodePNG(c.img, pngDPI)
-		pixBuffers.put(c.img.Pix)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure %s: write PNG: %w", f.Name, err)
 		}
@@ -183,14 +186,80 @@ func render(f figure, format string) ([]byte, error) {
 	if err := f.draw(dc); err != nil {
 		return nil, err
 	}
-	var buf bytes.Buffer
-	if _, err := c.WriteTo(&buf); err != nil {
+	buf := bytes.NewBuffer(outBuffers.get(format))
+	if _, err := c.WriteTo(buf); err != nil {
 		return nil, fmt.Errorf("report: figure %s: write %s: %w", f.Name, strings.ToUpper(format), err)
 	}
+	outBuffers.sized(format, buf.Len())
 	if format == "svg" {
-		return fixSVG(buf.Bytes()), nil
+		svg := fixSVG(buf.Bytes())
+		outBuffers.put(buf.Bytes())
+		return svg, nil
 	}
 	return buf.Bytes(), nil
+}
+
+// outBuffers keeps the buffers of figure files already written for the
+// next ones: a file is written into a buffer as large as the largest of
+// its format so far, a used one when one is free, rather than into a
+// bytes.Buffer grown by doubling from nothing, each growth fresh memory
+// (page faults) and a copy. Which buffer a file is written into does not
+// change its bytes.
+var outBuffers = outPool{largest: map[string]int{}}
+
+// maxOutFree is the most buffers outBuffers keeps.
+const maxOutFree = 6
+
+type outPool struct {
+	mu      sync.Mutex
+	free    [][]byte
+	largest map[string]int // the largest file of each format so far
+}
+
+// get returns an empty buffer for a file of format: a free one with room
+// for the largest file of that format so far, or a new one with that room
+// and an eighth more.
+func (p *outPool) get(format string) []byte {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	n := p.largest[format]
+	for i, b := range p.free {
+		if cap(b) >= n {
+			p.free = append(p.free[:i], p.free[i+1:]...)
+			return b[:0]
+		}
+	}
+	if n == 0 {
+		return nil
+	}
+	return make([]byte, 0, n+n/8)
+}
+
+// sized records a file of n bytes of format.
+func (p *outPool) sized(format string, n int) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.largest[format] = max(p.largest[format], n)
+}
+
+// put keeps b for a later get (the smallest buffer goes when more than
+// maxOutFree are kept); b must no longer be used.
+func (p *outPool) put(b []byte) {
+	if cap(b) == 0 {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.free = append(p.free, b)
+	if len(p.free) > maxOutFree {
+		k := 0
+		for i, f := range p.free {
+			if cap(f) < cap(p.free[k]) {
+				k = i
+			}
+		}
+		p.free = append(p.free[:k], p.free[k+1:]...)
+	}
 }
 
 // newPNGCanvas returns a white raster canvas of w x h at pngDPI. It is
@@ -210,6 +279,7 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	img := &image.RGBA{Pix: pixBuffers.get(4*pw*ph, 4*px(twoColumns)*px(maxHeight)), Stride: 4 * pw, Rect: image.Rect(0, 0, pw, ph)}
 	ctx := gg.NewContextForRGBA(img)
 	ctx.SetLineCapButt()
+	ctx.SetInterpolator(gridBiLinear{})
 	ctx.InvertY()
 	// NewWith paints the image with its background colour, white by
 	// default (an image option excludes UseBackgroundColor).

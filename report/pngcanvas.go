@@ -161,8 +161,9 @@ func drawGlyph(dst *image.RGBA, dr image.Rectangle, mask image.Image, maskp imag
 // pixBuffers keeps the pixel buffers of finished PNG canvases for the next
 // ones. A figure at 300 dpi is up to 22 MB of pixels; taking fresh memory
 // for each cost page faults and zeroing, about a tenth of writing a
-// report. At most maxFree buffers are kept (as many as figures are drawn
-// at once on a small machine); the rest go to the garbage collector.
+// report. New buffers come from newPixels (huge pages where it can). At
+// most maxFree buffers are kept (as many as figures are drawn at once on a
+// small machine); the rest are freed (freePixels).
 var pixBuffers bufferList
 
 const maxFree = 4
@@ -183,7 +184,7 @@ func (l *bufferList) get(n, room int) []byte {
 			return b[:n]
 		}
 	}
-	return make([]byte, n, max(n, room))
+	return newPixels(max(n, room))[:n]
 }
 
 // put keeps b for a later get; b must no longer be used.
@@ -192,5 +193,7 @@ func (l *bufferList) put(b []byte) {
 	defer l.mu.Unlock()
 	if len(l.free) < maxFree {
 		l.free = append(l.free, b)
+		return
 	}
+	freePixels(b)
 }

@@ -9,6 +9,7 @@ import (
 	"image"
 	"image/png"
 	"math"
+	"sync"
 )
 
 // encodePNG encodes an opaque image as an 8-bit RGB PNG (PNG
@@ -25,42 +26,85 @@ import (
 // pixels. An image with any transparent pixel (none of the figures has
 // one) is written by image/png as RGBA instead.
 func encodePNG(img *image.RGBA, dpi int) ([]byte, error) {
-	if !img.Opaque() {
-		var buf bytes.Buffer
-		if err := (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode(&buf, img); err != nil {
-			return nil, err
-		}
-		return withPNGResolution(buf.Bytes(), dpi)
+	data, opaque, err := encodeRGB(img, dpi)
+	if err != nil || opaque {
+		return data, err
 	}
+	outBuffers.put(data)
+	var buf bytes.Buffer
+	if err := (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode(&buf, img); err != nil {
+		return nil, err
+	}
+	return withPNGResolution(buf.Bytes(), dpi)
+}
+
+// encodeRGB writes img as encodePNG does an opaque image; it stops at the
+// first row with a pixel that is not opaque and returns false (and what it
+// wrote, to be given back to outBuffers).
+func encodeRGB(img *image.RGBA, dpi int) (data []byte, opaque bool, err error) {
 	w, h := img.Rect.Dx(), img.Rect.Dy()
-	var idat bytes.Buffer
-	zw, err := zlib.NewWriterLevel(&idat, zlib.BestSpeed)
-	if err != nil {
-		return nil, err
-	}
-	row := make([]byte, 1+3*w) // filter type 0 (none), then R, G, B per pixel
-	for y := range h {
-		pix := img.Pix[img.PixOffset(img.Rect.Min.X, img.Rect.Min.Y+y):]
-		for x := range w {
-			copy(row[1+3*x:1+3*x+3], pix[4*x:4*x+3])
-		}
-		if _, err := zw.Write(row); err != nil {
-			return nil, err
-		}
-	}
-	if err := zw.Close(); err != nil {
-		return nil, err
-	}
 	var ihdr [13]byte
 	binary.BigEndian.PutUint32(ihdr[0:], uint32(w))
 	binary.BigEndian.PutUint32(ihdr[4:], uint32(h))
 	ihdr[8], ihdr[9] = 8, 2 // bit depth, colour type RGB; compression, filter, interlace 0
-	out := make([]byte, 0, 8+4*12+len(ihdr)+9+idat.Len())
+	// The file is built in one buffer (a used one when free, see
+	// outBuffers): the IDAT chunk's data is deflated in place after its
+	// length and type, which are filled in after.
+	out := outBuffers.get("png")
 	out = append(out, "\x89PNG\r\n\x1a\n"...)
 	out = appendChunk(out, "IHDR", ihdr[:])
 	out = appendChunk(out, "pHYs", physData(dpi))
-	out = appendChunk(out, "IDAT", idat.Bytes())
-	return appendChunk(out, "IEND", nil), nil
+	idat := len(out)
+	out = append(out, "\x00\x00\x00\x00IDAT"...)
+	aw := &appendWriter{b: out}
+	zw := zlibWriters.Get().(*zlib.Writer)
+	defer func() {
+		zw.Reset(nil) // drop aw's buffer
+		zlibWriters.Put(zw)
+	}()
+	zw.Reset(aw)
+	row := make([]byte, 1+3*w) // filter type 0 (none), then R, G, B per pixel
+	for y := range h {
+		off := img.PixOffset(img.Rect.Min.X, img.Rect.Min.Y+y)
+		pix := img.Pix[off : off+4*w]
+		alpha := byte(0xff)
+		for x, q := 0, 1; x < len(pix); x, q = x+4, q+3 {
+			p := pix[x : x+4 : x+4]
+			rgb := row[q : q+3 : q+3]
+			rgb[0], rgb[1], rgb[2] = p[0], p[1], p[2]
+			alpha &= p[3]
+		}
+		if alpha != 0xff {
+			return aw.b, false, nil
+		}
+		if _, err := zw.Write(row); err != nil {
+			return nil, false, err
+		}
+	}
+	if err := zw.Close(); err != nil {
+		return nil, false, err
+	}
+	out = aw.b
+	binary.BigEndian.PutUint32(out[idat:], uint32(len(out)-idat-8))
+	out = binary.BigEndian.AppendUint32(out, crc32.ChecksumIEEE(out[idat+4:]))
+	out = appendChunk(out, "IEND", nil)
+	outBuffers.sized("png", len(out))
+	return out, true, nil
+}
+
+// zlibWriters are deflate writers at the fastest level, reset for each
+// PNG: a new one takes about a megabyte of tables and windows.
+var zlibWriters = sync.Pool{New: func() any {
+	zw, _ := zlib.NewWriterLevel(nil, zlib.BestSpeed) // errs only on an invalid level
+	return zw
+}}
+
+// appendWriter appends what is written to b.
+type appendWriter struct{ b []byte }
+
+func (w *appendWriter) Write(p []byte) (int, error) {
+	w.b = append(w.b, p...)
+	return len(p), nil
 }
 
 // appendChunk appends a PNG chunk: length, type, data, CRC of type and data.
