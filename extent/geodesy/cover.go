@@ -82,25 +82,24 @@ func (c *Cover) Bounds(pt *Point) (lo, hi float64, ok bool) {
 		return 0, 0, false
 	}
 	ix := c.ix
-	r, at := 5.0, -1
+	// The smallest chord r at slot at, and whether a tie at r differs
+	// from at in hemisphere or stretch (reset when r falls).
+	r, at, differ := 5.0, -1, false
 	for _, s := range c.slots {
-		if d := d2(&ix.pts[s], &pt.q); d < r {
-			r, at = d, int(s)
+		d := d2(&ix.pts[s], &pt.q)
+		if d < r {
+			r, at, differ = d, int(s), false
+		} else if d == r && at >= 0 &&
+			((ix.lat[ix.ids[s]]*pt.lat >= 0) != (ix.lat[ix.ids[at]]*pt.lat >= 0) || ix.stretch[s] != ix.stretch[at]) {
+			differ = true
 		}
 	}
-	if at < 0 || !(r <= A) {
+	if at < 0 || differ || !(r <= A) {
 		return 0, 0, false
 	}
 	sigma := 2 * math.Asin(math.Min(1, math.Sqrt(r)/2))
 	if g := withMargin(sigma*rectRadius*stretchMax*(1+1e-9)) + marginAbs; !(g*g <= B) {
 		return 0, 0, false
-	}
-	north := ix.lat[ix.ids[at]]*pt.lat >= 0
-	for _, s := range c.slots {
-		if int(s) != at && d2(&ix.pts[s], &pt.q) == r &&
-			((ix.lat[ix.ids[s]]*pt.lat >= 0) != north || ix.stretch[s] != ix.stretch[at]) {
-			return 0, 0, false
-		}
 	}
 	st := query{lat: pt.lat, lon: pt.lon, q: pt.q, bestD2: r, bestAt: at}
 	lo, hi = ix.chordBounds(&st, pt.k)
