@@ -264,8 +264,10 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // row's stencil, below) and d1 an upper bound on the centre's distance to
 // its nearest site (geodesy.Index.NearestBounds, no geodesic), the sites
 // the index lists within d1 + 2 rho of the centre hold every cell's
-// nearest site (triangle inequality, as in Distances). For each of them
-// the straight chord D between the ECEF positions bounds the geodesic s:
+// nearest site (triangle inequality, as in Distances); both queries are
+// answered from a list of the sites around the block's row of
+// super-tiles when it is shown to hold what the index would give
+// (geodesy.Cover: the same values). For each of them the straight chord D between the ECEF positions bounds the geodesic s:
 //
 //	D <= s <= (2/kappa) asin(kappa D/2) <= D (1 + u/6 + u^2/10),  u = (kappa D/2)^2,
 //
