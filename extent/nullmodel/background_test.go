@@ -169,9 +169,10 @@ func TestDistBin(t *testing.T) {
 
 // TestTallyAddAll: rows added with AddAll to sets of extents (more
 // distinct sets than a partial sum keeps as classes, so both ways are
-// taken, and sets in different orders, of up to 10 extents) encode byte
-// for byte as the same rows added extent by extent with Add; half the
-// rows have one weight (the walk of such rows has loops of its own).
+// taken, and sets in different orders, of up to 10 extents; half the rows
+// in a second partial sum, so that classes of both are merged) encode
+// byte for byte as the same rows added extent by extent with Add; half
+// the rows have one weight (the walk of such rows has loops of its own).
 func TestTallyAddAll(t *testing.T) {
 	r := rand.New(rand.NewPCG(31, 32))
 	var all, each Background
@@ -202,6 +203,13 @@ func TestTallyAddAll(t *testing.T) {
 		}
 		lo := r.IntN(n)
 		hi := lo + r.IntN(n-lo+1)
+		// Half the rows go to a second partial sum (the first one held),
+		// so that the same classes are merged from both.
+		var hold Tally
+		held := r.IntN(2) == 0
+		if held {
+			hold = all.Tally()
+		}
 		ta, te := all.Tally(), each.Tally()
 		ta.AddAll(ks, &row, lo, hi)
 		for _, k := range ks {
@@ -209,12 +217,63 @@ func TestTallyAddAll(t *testing.T) {
 		}
 		ta.Done()
 		te.Done()
+		if held {
+			hold.Done()
+		}
 	}
 	if sets <= bgClassCap {
 		t.Fatalf("%d sets of extents: the test would not fill the classes", sets)
 	}
 	if !bytes.Equal(EncodeBackground(&all), EncodeBackground(&each)) {
 		t.Error("AddAll encodes differently from Add extent by extent")
+	}
+}
+
+// TestTallyClassTaken: the sums of a class whose extents have none of
+// their own in a partial sum (one extent takes the class's when the
+// partial sums are merged), in two partial sums and with rows added to
+// one of its extents alone, then nested, encode byte for byte as the
+// same rows added extent by extent.
+func TestTallyClassTaken(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	var all, each Background
+	all.Nest([][]int{{1, 2, 3}})
+	each.Nest([][]int{{1, 2, 3}})
+	for q := range 40 {
+		n := 1 + r.IntN(30)
+		d, w := make([]float64, n), make([]int64, n)
+		for i := range d {
+			d[i], w[i] = math.Exp(1+12*r.Float64()), 1+r.Int64N(1e9)
+		}
+		var row Row
+		row.Set(d, w)
+		ks := []int{1, 2, 3}
+		if q%5 == 4 {
+			ks = []int{2}
+		}
+		var hold Tally
+		if q%2 == 1 {
+			hold = all.Tally() // the rows of odd q go to a second partial sum
+		}
+		ta, te := all.Tally(), each.Tally()
+		ta.AddAll(ks, &row, 0, n)
+		for _, k := range ks {
+			te.Add(k, &row, 0, n)
+		}
+		ta.Done()
+		te.Done()
+		if q%2 == 1 {
+			hold.Done()
+		}
+	}
+	if !bytes.Equal(EncodeBackground(&all), EncodeBackground(&each)) {
+		t.Error("a class's sums taken by one of its extents encode differently from Add extent by extent")
+	}
+	for k := 1; k <= 3; k++ {
+		if all.Mean(k) != each.Mean(k) || all.Median(k) != each.Median(k) || all.Area(k) != each.Area(k) {
+			t.Errorf("extent %d: mean %v median %v area %d, extent by extent %v %v %d", k,
+				all.Mean(k), all.Median(k), all.Area(k), each.Mean(k), each.Median(k), each.Area(k))
+		}
 	}
 }
 

@@ -264,8 +264,10 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // row's stencil, below) and d1 an upper bound on the centre's distance to
 // its nearest site (geodesy.Index.NearestBounds, no geodesic), the sites
 // the index lists within d1 + 2 rho of the centre hold every cell's
-// nearest site (triangle inequality, as in Distances). For each of them
-// the straight chord D between the ECEF positions bounds the geodesic s:
+// nearest site (triangle inequality, as in Distances); both queries are
+// answered from a list of the sites around the block's row of
+// super-tiles when it is shown to hold what the index would give
+// (geodesy.Cover: the same values). For each of them the straight chord D between the ECEF positions bounds the geodesic s:
 //
 //	D <= s <= (2/kappa) asin(kappa D/2) <= D (1 + u/6 + u^2/10),  u = (kappa D/2)^2,
 //
@@ -380,7 +382,7 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	}
 	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
-		left: sc.left[:0], cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+		left: sc.left[:0], cover: &sc.cover, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
 	b.setEdges()
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
@@ -437,6 +439,10 @@ type bracketer struct {
 	sub            []float64 // SubEdgeBinner's SubFloorEdges, or nil
 	nSub           float64   // len(sub)
 	subScale       float64   // SubFloor * scale
+	cover          *geodesy.Cover
+	coverRow       int              // the row of super-tiles cover was filled for
+	coverSet       bool             // cover was filled (or tried) for coverRow
+	rowPar         geodesy.Parallel // the latitude of coverRow's centres
 }
 
 // setEdges takes the floor bins' edges of b.bins when it is an
@@ -509,8 +515,18 @@ func (b *bracketer) super(sr, scol int) {
 	if ok {
 		// An upper bound d1 on the centre's nearest distance, from the
 		// index's chord stage (no geodesic), instead of the distance.
-		_, d1 := ix.NearestBounds(clat, clon, 0)
-		b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+		// From the sites around the row when they are shown to answer
+		// both queries (the same results), else from the index.
+		b.fillCover(sr, rho)
+		sl, cl := math.Sincos(clon * math.Pi / 180)
+		pt := b.rowPar.Point(clon, sl, cl) // NewPoint(clat, clon)'s bits
+		_, d1, hit := b.cover.Bounds(&pt)
+		if !hit {
+			_, d1, _ = ix.BoundsAt(&pt, 0, -1) // NearestBounds(clat, clon, 0)
+		}
+		if b.cands, hit = b.cover.Within(&pt, d1+2*rho, b.cands[:0]); !hit {
+			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+		}
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
 	}
 	if !ok {
@@ -560,6 +576,37 @@ func (b *bracketer) super(sr, scol int) {
 			b.patch(sr*superP+pr, scol*superP+pc, clat, clon)
 		}
 	}
+}
+
+// coverLimit is the most sites a row's cover may hold: our choice; a
+// longer list costs more per super-tile than the index's queries.
+const coverLimit = 48
+
+// fillCover fills b.cover, once per row sr of super-tiles, with the sites
+// around the centre P of the middle super-tile of the block's part of the
+// row, within R = 1.01 (d1 + 2 s + 2 rho) + 1 km, d1 the upper bound on
+// P's nearest distance and s the chord from P to the farthest super-tile
+// centre of the row in the block: about what the super-tiles' queries
+// reach (their d1 is within s of P's, and they ask for d1 + 2 rho). Only
+// a choice of size: the cover itself shows, query by query, whether it
+// holds what the index would give (geodesy.Cover).
+func (b *bracketer) fillCover(sr int, rho float64) {
+	if b.coverSet && b.coverRow == sr {
+		return
+	}
+	b.coverSet, b.coverRow = true, sr
+	s0, s1 := floorDiv(b.x0, SuperTile), floorDiv(b.x0+b.w-1, SuperTile)
+	ll := b.ll
+	cr := sr*SuperTile + SuperTile/2
+	centre := func(scol int) float64 { return ll.lon(scol*SuperTile + SuperTile/2) }
+	lat, lon := ll.lat(cr), centre((s0+s1)/2)
+	p := ecef(lat, lon)
+	span := max(dist3(p, ecef(lat, centre(s0))), dist3(p, ecef(lat, centre(s1))))
+	_, d1 := b.f.ix.NearestBounds(lat, lon, 0)
+	b.rowPar = geodesy.NewParallel(lat)
+	sl, cl := math.Sincos(lon * math.Pi / 180)
+	pt := b.rowPar.Point(lon, sl, cl)
+	b.f.ix.CoverSites(&pt, 1.01*(d1+2*span+2*rho)+1e3, coverLimit, b.cover)
 }
 
 // anyNeeded reports whether a cell of block rows [y1, y2) and columns

@@ -46,6 +46,7 @@ type scratch struct {
 	left       []leftCell
 	rowA, rowZ []float64 // Bracket's ECEF rows and columns
 	colC, colS []float64
+	cover      geodesy.Cover // Bracket's sites around a row of super-tiles
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
