@@ -345,16 +345,7 @@ func openTestRasterBlocks(t *testing.T, w, h, bs int) (*extent.Grid, *Raster) {
 // value(r, c), and, when scaled, a scale of 0.0005 and offset of 0.1.
 func writeTypedRaster(t *testing.T, path string, w, h int, typ godal.DataType, value func(r, c int) float64, scaled bool) {
 	t.Helper()
-	extent.Register()
-	ds, err := godal.Create(godal.GTiff, path, 1, typ, w, h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	ds.SetGeoTransform([6]float64{0, 0.01, 0, 50, 0, -0.01})
-	sr, _ := godal.NewSpatialRefFromEPSG(4326)
-	ds.SetSpatialRef(sr)
-	b := ds.Bands()[0]
-	b.SetNoData(-9999)
+	ds, b := createGridRaster(t, path, w, h, typ, "TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64")
 	if scaled {
 		if err := b.SetScaleOffset(0.0005, 0.1); err != nil {
 			t.Fatal(err)

@@ -25,13 +25,14 @@ func writeTestRaster(tb testing.TB, path string, w, h int) {
 	}, "TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256")
 }
 
-// writeGridRaster writes a w x h Float32 GeoTIFF (EPSG:4326, 0.01-degree
-// cells from 0 E, 50 N, nodata -9999) with value(r, c) in each cell and the
-// given creation options, row by row, and builds overviews when asked.
-func writeGridRaster(tb testing.TB, path string, w, h int, overviews bool, value func(r, c int) float32, opts ...string) {
+// createGridRaster creates a w x h GeoTIFF of type typ with the given
+// creation options on the tests' grid (EPSG:4326, 0.01-degree cells from
+// 0 E, 50 N, nodata -9999) and returns it and its band for writing; the
+// caller closes it.
+func createGridRaster(tb testing.TB, path string, w, h int, typ godal.DataType, opts ...string) (*godal.Dataset, godal.Band) {
 	tb.Helper()
 	extent.Register()
-	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption(opts...))
+	ds, err := godal.Create(godal.GTiff, path, 1, typ, w, h, godal.CreationOption(opts...))
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -40,6 +41,15 @@ func writeGridRaster(tb testing.TB, path string, w, h int, overviews bool, value
 	ds.SetSpatialRef(sr)
 	b := ds.Bands()[0]
 	b.SetNoData(-9999)
+	return ds, b
+}
+
+// writeGridRaster writes a w x h Float32 GeoTIFF (EPSG:4326, 0.01-degree
+// cells from 0 E, 50 N, nodata -9999) with value(r, c) in each cell and the
+// given creation options, row by row, and builds overviews when asked.
+func writeGridRaster(tb testing.TB, path string, w, h int, overviews bool, value func(r, c int) float32, opts ...string) {
+	tb.Helper()
+	ds, b := createGridRaster(tb, path, w, h, godal.Float32, opts...)
 	row := make([]float32, w)
 	for r := 0; r < h; r++ {
 		for c := range row {
