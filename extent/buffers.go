@@ -126,6 +126,13 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
 	for i := range lats {
 		if !math.IsNaN(lats[i]) {
 			lats[k], lons[k] = lats[i], lons[i]
+			// The copy of a one-piece polar polygon a turn east of -180..180
+			// (see shapeOf) reaches 540: the same meridians a turn back.
+			if lons[k] > 360 {
+				lons[k] -= 360
+			} else if lons[k] < -360 {
+				lons[k] += 360
+			}
 			k++
 		}
 	}
@@ -136,10 +143,12 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
 // pole line. Such edges are where a region was cut to fit longitude and
 // latitude ranges, not its boundary on the Earth, so buffer distances are
 // not measured to them: a region split in two at 180 degrees is buffered as
-// the one region it is.
+// the one region it is. An edge from -180 to 180 runs along a parallel
+// across the whole map (a polygon around a pole written in one piece): it
+// is a boundary unless that parallel is a pole line.
 func seamEdge(a, b orb.Point) bool {
 	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
-	return anti(a[0]) && anti(b[0]) || math.Abs(a[1]) == 90 && a[1] == b[1]
+	return anti(a[0]) && a[0] == b[0] || math.Abs(a[1]) == 90 && a[1] == b[1]
 }
 
 // pointBuffers adds, for each radius, the union of geodesic discs around pts.

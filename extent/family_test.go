@@ -511,6 +511,135 @@ func TestPolarCap(t *testing.T) {
 	}
 }
 
+// TestPolarCapOnePiece: a cap north of 60 N written as one ring from -180
+// to 180 (edges along the 60 N parallel across the whole map, along the
+// antimeridian and along the pole line), with a hole, gives every member
+// the cells of the same cap written as two halves split at 0 and 180
+// degrees (the form TestPolarCap checks against PROJ): on a grid running
+// -180..180 and on one running 0..360, whose columns are the same cells
+// half a turn apart. Before, the whole-turn edge was refused as an
+// antimeridian crossing.
+func TestPolarCapOnePiece(t *testing.T) {
+	dir := t.TempDir()
+	hole := `[[100,70],[100,75],[120,75],[120,70],[100,70]]`
+	whole := `[[[-180,60],[180,60],[180,90],[-180,90],[-180,60]],` + hole + `]`
+	west := `[[[-180,60],[0,60],[0,90],[-180,90],[-180,60]]]`
+	east := `[[[0,60],[180,60],[180,90],[0,90],[0,60]],` + hole + `]`
+	write := func(name string, polys ...string) string {
+		var feats []string
+		for i, p := range polys {
+			feats = append(feats, fmt.Sprintf(`{"type":"Feature","properties":{"id":"%d"},"geometry":{"type":"Polygon","coordinates":%s}}`, i, p))
+		}
+		path := filepath.Join(dir, name)
+		if err := os.WriteFile(path, []byte(`{"type":"FeatureCollection","features":[`+strings.Join(feats, ",")+`]}`), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return path
+	}
+	onePiece, halves := write("one.geojson", whole), write("halves.geojson", west, east)
+	spec := func(region string) Spec {
+		return Spec{Region: region, RegionBuffersKm: []float64{-150, 300}}
+	}
+	build := func(region string, w0 float64) *Family {
+		g, v := geoGrid(t, w0, 90, 2, 180, 45)
+		f, err := Build(g, v, spec(region), nil, nil)
+		if err != nil {
+			t.Fatalf("%s on a grid from %g: %v", filepath.Base(region), w0, err)
+		}
+		return f
+	}
+	ref := build(halves, -180)
+	for _, c := range []struct {
+		region string
+		west   float64
+	}{{onePiece, -180}, {onePiece, 0}, {halves, 0}} {
+		f := build(c.region, c.west)
+		shift := int(math.Round((c.west + 180) / 2)) // columns of the reference grid
+		for _, id := range []string{"base", "region_minus150km", "region_300km"} {
+			kr, kf := memberIdx(t, ref, id), memberIdx(t, f, id)
+			n := 0
+			for row := 0; row < 45; row++ {
+				for col := 0; col < 180; col++ {
+					want := ref.Has(kr, row*180+(col+shift)%180)
+					if got := f.Has(kf, row*180+col); got != want {
+						t.Fatalf("%s on a grid from %g: %s at row %d col %d: %v, want %v", filepath.Base(c.region), c.west, id, row, col, got, want)
+					}
+					if want {
+						n++
+					}
+				}
+			}
+			if n == 0 || n == 180*45 {
+				t.Fatalf("%s: %d cells: the comparison shows nothing", id, n)
+			}
+		}
+	}
+	// The hole is out of the base region and the cap is in it.
+	kb := memberIdx(t, ref, "base")
+	if ref.Has(kb, 9*180+145) || !ref.Has(kb, 2*180+10) {
+		t.Fatal("the hole (lat 71, lon 111) is in the base region, or the cap (lat 85, lon -159) is not")
+	}
+}
+
+// TestPolarCapProjected: the cap north of 70 N written in one piece in
+// longitude/latitude (as TestPolarCapOnePiece) and a square in the
+// raster's own CRS, on a polar stereographic raster (EPSG:3413, 20 km
+// cells, the pole at its centre). The cap's base is the cells whose centre
+// lies north of 70 N, and its 100 km shrink the cells more than 100 km
+// from the 70 N parallel (the meridian arc, PROJ): the edges that cut the
+// ring at the antimeridian and the pole are not its boundary. Cells within
+// 30 km of either boundary (a cell's half diagonal is 14 km) are not
+// checked. The square, whose corners' longitudes run round the pole, is
+// no antimeridian crossing: it builds. Before, the cap covered no cell and
+// the square was refused.
+func TestPolarCapProjected(t *testing.T) {
+	dir := t.TempDir()
+	cap := writeGeoJSON(t, dir, "cap.geojson", []string{"c"}, [][][2]float64{{{-180, 70}, {180, 70}, {180, 90}, {-180, 90}, {-180, 70}}})
+	const side, cell = 200, 20000.0
+	g, err := NewGrid(side, side, [6]float64{-side / 2 * cell, cell, 0, side / 2 * cell, 0, -cell}, "EPSG:3413")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := NewValid(side * side)
+	for i := range side * side {
+		v.Set(i)
+	}
+	f, err := Build(g, v, Spec{Region: cap, RegionBuffersKm: []float64{-100}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	base, shrink := memberIdx(t, f, "base"), memberIdx(t, f, "region_minus100km")
+	lons, lats := make([]float64, side), make([]float64, side)
+	checked := [2]int{}
+	for row := range side {
+		g.RowLonLat(row, lons, lats)
+		for col := range side {
+			i := row*side + col
+			d := geodesy.Distance(lats[col], lons[col], 70, lons[col]) / 1000
+			if d > 30 {
+				checked[0]++
+				if got, want := f.Has(base, i), lats[col] > 70; got != want {
+					t.Fatalf("base at lat %.2f lon %.2f (%.0f km from 70 N): %v, want %v", lats[col], lons[col], d, got, want)
+				}
+			}
+			if math.Abs(d-100) > 30 {
+				checked[1]++
+				if got, want := f.Has(shrink, i), lats[col] > 70 && d > 100; got != want {
+					t.Fatalf("region_minus100km at lat %.2f lon %.2f (%.0f km from 70 N): %v, want %v", lats[col], lons[col], d, got, want)
+				}
+			}
+		}
+	}
+	if checked[0] < side*side/2 || checked[1] < side*side/2 {
+		t.Fatalf("only %v cells checked", checked)
+	}
+	sq := filepath.Join(dir, "square.gpkg")
+	writeSquareGPKG(t, sq, 3413, 1.5e6)
+	if _, err := Build(g, v, Spec{Region: sq, RegionBuffersKm: []float64{-100}}, nil, nil); err != nil {
+		t.Fatalf("a square round the pole in the raster's CRS: %v", err)
+	}
+}
+
 // TestClipEqualsBuildOnValid: building on every cell and clipping to the
 // valid cells afterwards gives the family built on the valid cells at once.
 func TestClipEqualsBuildOnValid(t *testing.T) {

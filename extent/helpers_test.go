@@ -1,6 +1,9 @@
 package extent
 
 import (
+	"fmt"
+	"testing"
+
 	"github.com/airbusgeo/godal"
 )
 
@@ -39,4 +42,35 @@ func sameMembership(a, b *Family) bool {
 		}
 	}
 	return true
+}
+
+// writeSquareGPKG writes a GeoPackage holding one square of half side
+// half (metres) centred on the origin of the CRS EPSG:epsg.
+func writeSquareGPKG(t *testing.T, path string, epsg int, half float64) {
+	t.Helper()
+	Register()
+	sr, err := godal.NewSpatialRefFromEPSG(epsg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer sr.Close()
+	ds, err := godal.CreateVector(godal.GeoPackage, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	layer, err := ds.CreateLayer("square", sr, godal.GTPolygon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	wkt := fmt.Sprintf("POLYGON ((%[1]g %[1]g, %[2]g %[1]g, %[2]g %[2]g, %[1]g %[2]g, %[1]g %[1]g))", -half, half)
+	geom, err := godal.NewGeometryFromWKT(wkt, sr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := layer.NewFeature(geom); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
 }

@@ -193,6 +193,17 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	units := make([]Unit, 0, len(order))
 	for _, id := range order {
 		geom := byID[id]
+		if lsr.Geographic() && !g.Geographic {
+			// Longitude edges are checked here, where they are the
+			// user's: on a projected raster an edge is straight in the
+			// raster's CRS, and one that runs round a pole (polar
+			// stereographic) is no crossing.
+			if d, err := densifyWholeTurns(geom, lsr); err != nil {
+				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+			} else if d != nil {
+				geom = d
+			}
+		}
 		if err := geom.Reproject(g.srs); err != nil {
 			return nil, warns, fmt.Errorf("extent: %s unit %q: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", path, id, gdalmsg.Cause(err.Error()))
 		}
@@ -389,12 +400,28 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 		// Put each ring in the grid's longitude range by whole turns, so a
 		// region given in -180..180 lands on a grid running 170..190.
 		west := g.GeoTransform[0]
+		east := west + float64(g.Width)*g.GeoTransform[1]
+		var out orb.MultiPolygon
 		for _, p := range mp {
-			for _, r := range p {
-				lo := math.Inf(1)
-				for _, pt := range r {
-					lo = math.Min(lo, pt[0])
+			if len(p) == 0 {
+				continue
+			}
+			lo, hi := lonRange(p[0])
+			if hi-lo == 360 {
+				// A polygon around a pole written in one piece, from -180
+				// to 180: one turn wide, it covers every longitude, so a
+				// copy, holes and all, goes to each turn that meets the
+				// grid (two when the grid does not start at its west
+				// edge).
+				for k := math.Floor((west - hi) / 360); lo+360*k < east; k++ {
+					if hi+360*k > west {
+						out = append(out, shiftedPolygon(p, 360*k))
+					}
 				}
+				continue
+			}
+			for _, r := range p {
+				lo, _ := lonRange(r)
 				shift := wrapInto(lo, west) - lo
 				if shift != 0 {
 					for k := range r {
@@ -402,7 +429,9 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 					}
 				}
 			}
+			out = append(out, p)
 		}
+		mp = out
 	}
 	ll := make(orb.MultiPolygon, len(mp))
 	for i, p := range mp {
@@ -423,8 +452,10 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 				}
 				rr[k] = orb.Point{lons[k], lats[k]}
 			}
-			if err := checkRingLon(rr, g.Geographic); err != nil {
-				return Shape{}, err
+			if g.Geographic {
+				if err := checkRingLon(rr, true); err != nil {
+					return Shape{}, err
+				}
 			}
 			ll[i][j] = rr
 		}
@@ -434,14 +465,23 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 
 // checkRingLon refuses rings with an edge jumping more than 180 degrees of
 // longitude: such a ring crosses the antimeridian in a way the grid cannot
-// represent, and filling it would cover the wrong side of the Earth.
+// represent, and filling it would cover the wrong side of the Earth. It
+// checks the rings on a latitude-longitude grid (shapeOf) and, for a
+// projected grid, the rings of a layer in longitude/latitude before they
+// are projected (densifyWholeTurns): a ring in projected coordinates is
+// straight in them wherever its corners' longitudes lie.
 //
 // On latitude-longitude grids the ring has been shifted by whole turns
 // into the grid's range; the message shows the longitudes in -180..180,
 // as the user wrote them.
+//
+// An edge from one copy of the antimeridian to the other (-180 to 180, a
+// whole turn) is kept: it runs along a parallel across the whole map, as
+// in a polygon around a pole written in one piece.
 func checkRingLon(r orb.Ring, shifted bool) error {
+	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
 	for i := 1; i < len(r); i++ {
-		if math.Abs(r[i][0]-r[i-1][0]) > 180 {
+		if d := math.Abs(r[i][0] - r[i-1][0]); d > 180 && !(d == 360 && anti(r[i][0]) && anti(r[i-1][0])) {
 			a, b := r[i-1][0], r[i][0]
 			if shifted {
 				a, b = wrapInto(a, -180), wrapInto(b, -180)
@@ -450,6 +490,134 @@ func checkRingLon(r orb.Ring, shifted bool) error {
 		}
 	}
 	return nil
+}
+
+// wholeTurnStep is the longitude step (degrees) at which densifyWholeTurns
+// cuts a whole-turn edge: our choice, fine enough that the chords stay
+// within about 1 m of the parallel per 1000 km of its radius.
+const wholeTurnStep = 0.1
+
+// densifyWholeTurns checks the rings of geom (longitude/latitude in srs)
+// with checkRingLon and returns geom with every edge from -180 to 180 cut
+// into steps of wholeTurnStep degrees, the parallel it stands for, so that
+// it keeps its shape on a projected raster instead of joining two copies
+// of one point; nil when geom has no such edge.
+func densifyWholeTurns(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	b, err := geom.WKB()
+	if err != nil {
+		return nil, err
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %w", err)
+	}
+	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
+	found := false
+	var bad error
+	ring := func(r orb.Ring) orb.Ring {
+		if err := checkRingLon(r, false); err != nil && bad == nil {
+			bad = err
+		}
+		var out orb.Ring
+		for i, pt := range r {
+			if i > 0 {
+				a := r[i-1]
+				if math.Abs(pt[0]-a[0]) == 360 && anti(pt[0]) && anti(a[0]) {
+					found = true
+					n := int(360 / wholeTurnStep)
+					for k := 1; k < n; k++ {
+						f := float64(k) / float64(n)
+						out = append(out, orb.Point{a[0] + f*(pt[0]-a[0]), a[1] + f*(pt[1]-a[1])})
+					}
+				}
+			}
+			out = append(out, pt)
+		}
+		if !found {
+			return out
+		}
+		// A corner between two seam edges (along the antimeridian or a
+		// pole line) is where the ring was cut to fit the longitude range:
+		// projected, those edges are a slit to the pole, not a boundary.
+		return dropSeamCorners(out)
+	}
+	poly := func(p orb.Polygon) orb.Polygon {
+		q := make(orb.Polygon, len(p))
+		for j, r := range p {
+			q[j] = ring(r)
+		}
+		return q
+	}
+	var ng orb.Geometry
+	switch v := og.(type) {
+	case orb.Polygon:
+		ng = poly(v)
+	case orb.MultiPolygon:
+		m := make(orb.MultiPolygon, len(v))
+		for i, p := range v {
+			m[i] = poly(p)
+		}
+		ng = m
+	default:
+		return nil, nil
+	}
+	if bad != nil {
+		return nil, bad
+	}
+	if !found {
+		return nil, nil
+	}
+	nb, err := wkb.Marshal(ng)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %w", err)
+	}
+	d, err := godal.NewGeometryFromWKB(nb, srs)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %s", gdalmsg.Cause(err.Error()))
+	}
+	return d, nil
+}
+
+// dropSeamCorners returns the closed ring r without the corners whose two
+// edges are both seam edges (seamEdge).
+func dropSeamCorners(r orb.Ring) orb.Ring {
+	n := len(r) - 1 // r[n] == r[0]
+	if n < 3 {
+		return r
+	}
+	var out orb.Ring
+	for i := range n {
+		prev, next := r[(i+n-1)%n], r[i+1]
+		if seamEdge(prev, r[i]) && seamEdge(r[i], next) {
+			continue
+		}
+		out = append(out, r[i])
+	}
+	if len(out) < 3 {
+		return r
+	}
+	return append(out, out[0])
+}
+
+// lonRange returns the smallest and largest longitude of r.
+func lonRange(r orb.Ring) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, pt := range r {
+		lo, hi = math.Min(lo, pt[0]), math.Max(hi, pt[0])
+	}
+	return lo, hi
+}
+
+// shiftedPolygon returns a copy of p moved by dlon degrees of longitude.
+func shiftedPolygon(p orb.Polygon, dlon float64) orb.Polygon {
+	out := make(orb.Polygon, len(p))
+	for j, r := range p {
+		out[j] = make(orb.Ring, len(r))
+		for k, pt := range r {
+			out[j][k] = orb.Point{pt[0] + dlon, pt[1]}
+		}
+	}
+	return out
 }
 
 // edge is a polygon edge in fractional pixel coordinates (col, row).
