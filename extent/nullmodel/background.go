@@ -94,6 +94,7 @@ type bgShard struct {
 	mu      sync.Mutex
 	ext     []bgExtent
 	classes []*bgClass // see Tally.AddAll
+	bins    []int32    // AddValues' scratch
 }
 
 // bgClass holds the sums of cells added to every extent of ks at once
@@ -344,6 +345,174 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 	}
 }
 
+// AddValues adds the cells of one run to each extent of ks (each >= 0,
+// none twice, ascending or not: a set is matched as given): the cells
+// of minus value vals[i] (the null model's values, minus the distances;
+// NaN cells are skipped), each of weight weights[i], or of weight w when
+// weights is nil. It is AddAll on a Row set from the run alone, without
+// the Row: each cell's millimetres and bin are found in the same walk
+// that adds its weight to the histogram, and the run's sums are added up
+// as they go (no prefix sums). The sums are the same integers as
+// AddAll's (an exact sum mod 2^128 either way: a run of one weight sums
+// its millimetres in 64 bits, below 2^64 for fewer than 2^27 cells of
+// distances below 2^27 m, and multiplies once; a farther cell adds its
+// own 128-bit product), so the encoding is the same byte for byte.
+func (t Tally) AddValues(ks []int32, vals []float64, weights []int64, w int64) {
+	if len(ks) == 0 || len(vals) == 0 {
+		return
+	}
+	for len(vals) > maxConstRow {
+		// Runs are block rows in a pass: this only bounds the 64-bit sum.
+		t.AddValues(ks, vals[:maxConstRow], weightsHead(weights, maxConstRow), w)
+		vals, weights = vals[maxConstRow:], weightsTail(weights, maxConstRow)
+	}
+	var e *bgExtent
+	if len(ks) == 1 {
+		e = t.ext(int(ks[0]))
+	} else if c := t.class32(ks); c != nil {
+		e = &c.ext
+	}
+	if e != nil {
+		s := valueSums(e.hist, nil, vals, weights, w)
+		s.addTo(e)
+		return
+	}
+	// Several extents with no class of their own: the bins once, into
+	// the partial sum's scratch, then each extent's histogram.
+	sh := t.sh
+	if cap(sh.bins) < len(vals) {
+		sh.bins = make([]int32, len(vals))
+	}
+	bins := sh.bins[:len(vals)]
+	s := valueSums(nil, bins, vals, weights, w)
+	for _, k := range ks {
+		e := t.ext(int(k))
+		s.addTo(e)
+		h := (*[histLen]int64)(e.hist)
+		if weights == nil {
+			for _, j := range bins {
+				if uint32(j) < histLen {
+					h[j] += w
+				}
+			}
+			continue
+		}
+		for i, j := range bins {
+			if uint32(j) < histLen {
+				h[j] += weights[i]
+			}
+		}
+	}
+}
+
+func weightsHead(w []int64, n int) []int64 {
+	if w == nil {
+		return nil
+	}
+	return w[:n]
+}
+
+func weightsTail(w []int64, n int) []int64 {
+	if w == nil {
+		return nil
+	}
+	return w[n:]
+}
+
+// runTotals are a run's area and 128-bit sum of weight x millimetres.
+type runTotals struct {
+	area         int64
+	sumHi, sumLo uint64
+}
+
+// addTo adds the run's sums to e's (wrapping as runSums does).
+func (s runTotals) addTo(e *bgExtent) {
+	e.area += s.area
+	var carry uint64
+	e.sumLo, carry = bits.Add64(e.sumLo, s.sumLo, 0)
+	e.sumHi, _ = bits.Add64(e.sumHi, s.sumHi, carry)
+}
+
+// valueSums walks the cells of AddValues once: each cell of minus value
+// vals[i] (NaN skipped) adds its weight at its bin of hist (when hist is
+// not nil) and sets bins[i] to that bin, -1 for NaN (when bins is not
+// nil); it returns the run's sums. One weight w (weights nil): the
+// millimetres of the cells below 2^27 m are summed in 64 bits (fewer than
+// 2^27 cells: below 2^64) and multiplied by w once, as Row does for a row
+// of one weight; a cell at or beyond 2^27 m adds its own product in 128
+// bits, as Row does for a row holding one (the same integer mod 2^128).
+func valueSums(hist []int64, bins []int32, vals []float64, weights []int64, w int64) runTotals {
+	var s runTotals
+	var h *[histLen]int64
+	if hist != nil {
+		h = (*[histLen]int64)(hist)
+	}
+	if weights == nil {
+		var n int64
+		var mm uint64
+		for i, v := range vals {
+			d := 0 - v
+			if d != d { // NaN
+				if bins != nil {
+					bins[i] = -1
+				}
+				continue
+			}
+			n++
+			var j int
+			if d < 1<<27 {
+				// distBin, whose clamp is not reached below 2^27 m.
+				if d >= 1 {
+					j = 1 + int((math.Float64bits(d)-oneBits)>>binShift)
+				}
+				mm += roundMM(d)
+			} else {
+				j = distBin(d)
+				ph, pl := bits.Mul64(roundMM(d), uint64(w))
+				var carry uint64
+				s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+				s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+			}
+			if h != nil {
+				h[j] += w
+			}
+			if bins != nil {
+				bins[i] = int32(j)
+			}
+		}
+		s.area = n * w
+		ph, pl := bits.Mul64(mm, uint64(w))
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+		return s
+	}
+	weights = weights[:len(vals)]
+	for i, v := range vals {
+		d := 0 - v
+		if d != d {
+			if bins != nil {
+				bins[i] = -1
+			}
+			continue
+		}
+		wi := weights[i]
+		j := distBin(d)
+		ph, pl := bits.Mul64(roundMM(d), uint64(wi))
+		s.area += wi
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+		if h != nil {
+			h[j] += wi
+		}
+		if bins != nil {
+			bins[i] = int32(j)
+		}
+	}
+	return s
+}
+
 // addHistConst adds w at bin j of each of the 2 or 3 histograms hs (each
 // histLen long) for every bin j >= 0 of bins: AddAll's walk for a row of
 // one weight, one loop per count with each histogram in a register and no
@@ -395,6 +564,36 @@ func (t Tally) class(ks []int) *bgClass {
 	c := &bgClass{ks: slices.Clone(ks), ext: bgExtent{hist: make([]int64, histLen)}}
 	sh.classes = append(sh.classes, c)
 	return c
+}
+
+// class32 is class for extents given as int32s.
+func (t Tally) class32(ks []int32) *bgClass {
+	sh := t.sh
+	for _, c := range sh.classes {
+		if len(c.ks) == len(ks) && equal32(c.ks, ks) {
+			return c
+		}
+	}
+	if len(sh.classes) == bgClassCap {
+		return nil
+	}
+	c := &bgClass{ks: make([]int, len(ks)), ext: bgExtent{hist: make([]int64, histLen)}}
+	for i, k := range ks {
+		c.ks[i] = int(k)
+	}
+	sh.classes = append(sh.classes, c)
+	return c
+}
+
+// equal32 reports whether a and b (of one length) hold the same extents
+// in the same order.
+func equal32(a []int, b []int32) bool {
+	for i, k := range b {
+		if a[i] != int(k) {
+			return false
+		}
+	}
+	return true
 }
 
 // ext returns extent k's partial sums, made on first use.
