@@ -94,7 +94,6 @@ type bgShard struct {
 	mu      sync.Mutex
 	ext     []bgExtent
 	classes []*bgClass // see Tally.AddAll
-	bins    []int32    // AddValues' scratch
 }
 
 // bgClass holds the sums of cells added to every extent of ks at once
@@ -346,17 +345,18 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 }
 
 // AddValues adds the cells of one run to each extent of ks (each >= 0,
-// none twice, ascending or not: a set is matched as given): the cells
-// of minus value vals[i] (the null model's values, minus the distances;
-// NaN cells are skipped), each of weight weights[i], or of weight w when
+// none twice; a set is matched as given, as AddAll's): the cells of
+// minus value vals[i] (the null model's values, minus the distances; NaN
+// cells are skipped), each of weight weights[i], or of weight w when
 // weights is nil. It is AddAll on a Row set from the run alone, without
 // the Row: each cell's millimetres and bin are found in the same walk
-// that adds its weight to the histogram, and the run's sums are added up
-// as they go (no prefix sums). The sums are the same integers as
-// AddAll's (an exact sum mod 2^128 either way: a run of one weight sums
-// its millimetres in 64 bits, below 2^64 for fewer than 2^27 cells of
-// distances below 2^27 m, and multiplies once; a farther cell adds its
-// own 128-bit product), so the encoding is the same byte for byte.
+// that adds its weight to the histograms (of up to 4 extents at once, or
+// of the set's class), and the run's sums are added up as they go (no
+// prefix sums). The sums are the same integers as AddAll's (exact mod
+// 2^128 either way: a run of one weight sums its millimetres in 64 bits,
+// below 2^64 for fewer than 2^27 cells of distances below 2^27 m, and
+// multiplies once, as Row does; a farther cell adds its own 128-bit
+// product), so the encoding is the same byte for byte.
 func (t Tally) AddValues(ks []int32, vals []float64, weights []int64, w int64) {
 	if len(ks) == 0 || len(vals) == 0 {
 		return
@@ -366,42 +366,29 @@ func (t Tally) AddValues(ks []int32, vals []float64, weights []int64, w int64) {
 		t.AddValues(ks, vals[:maxConstRow], weightsHead(weights, maxConstRow), w)
 		vals, weights = vals[maxConstRow:], weightsTail(weights, maxConstRow)
 	}
-	var e *bgExtent
-	if len(ks) == 1 {
-		e = t.ext(int(ks[0]))
-	} else if c := t.class32(ks); c != nil {
-		e = &c.ext
-	}
-	if e != nil {
-		s := valueSums(e.hist, nil, vals, weights, w)
-		s.addTo(e)
-		return
-	}
-	// Several extents with no class of their own: the bins once, into
-	// the partial sum's scratch, then each extent's histogram.
-	sh := t.sh
-	if cap(sh.bins) < len(vals) {
-		sh.bins = make([]int32, len(vals))
-	}
-	bins := sh.bins[:len(vals)]
-	s := valueSums(nil, bins, vals, weights, w)
-	for _, k := range ks {
-		e := t.ext(int(k))
-		s.addTo(e)
-		h := (*[histLen]int64)(e.hist)
-		if weights == nil {
-			for _, j := range bins {
-				if uint32(j) < histLen {
-					h[j] += w
-				}
-			}
-			continue
+	var hs [4]*[histLen]int64
+	if len(ks) > 1 {
+		if c := t.class32(ks); c != nil {
+			hs[0] = (*[histLen]int64)(c.ext.hist)
+			valueSums(&hs, 1, vals, weights, w).addTo(&c.ext)
+			return
 		}
-		for i, j := range bins {
-			if uint32(j) < histLen {
-				h[j] += weights[i]
-			}
+	}
+	var es [4]*bgExtent
+	for len(ks) > 0 {
+		n := min(len(ks), len(hs))
+		for _, k := range ks[:n] {
+			t.ext(int(k)) // may grow the partial sum's extents: pointers after
 		}
+		for q, k := range ks[:n] {
+			es[q] = &t.sh.ext[k]
+			hs[q] = (*[histLen]int64)(es[q].hist)
+		}
+		s := valueSums(&hs, n, vals, weights, w)
+		for _, e := range es[:n] {
+			s.addTo(e)
+		}
+		ks = ks[n:]
 	}
 }
 
@@ -434,32 +421,26 @@ func (s runTotals) addTo(e *bgExtent) {
 }
 
 // valueSums walks the cells of AddValues once: each cell of minus value
-// vals[i] (NaN skipped) adds its weight at its bin of hist (when hist is
-// not nil) and sets bins[i] to that bin, -1 for NaN (when bins is not
-// nil); it returns the run's sums. One weight w (weights nil): the
-// millimetres of the cells below 2^27 m are summed in 64 bits (fewer than
-// 2^27 cells: below 2^64) and multiplied by w once, as Row does for a row
-// of one weight; a cell at or beyond 2^27 m adds its own product in 128
-// bits, as Row does for a row holding one (the same integer mod 2^128).
-func valueSums(hist []int64, bins []int32, vals []float64, weights []int64, w int64) runTotals {
+// vals[i] (NaN skipped) adds its weight at its bin of the histograms
+// hs[:n] (1 <= n <= 4), and the run's sums are returned. One weight w
+// (weights nil): the millimetres of the cells below 2^27 m are summed in
+// 64 bits (fewer than 2^27 cells: below 2^64) and multiplied by w once,
+// as Row does for a row of one weight; a cell at or beyond 2^27 m adds
+// its own product in 128 bits, as Row does for a row holding one (the
+// same integer mod 2^128).
+func valueSums(hs *[4]*[histLen]int64, n int, vals []float64, weights []int64, w int64) runTotals {
 	var s runTotals
-	var h *[histLen]int64
-	if hist != nil {
-		h = (*[histLen]int64)(hist)
-	}
+	h0, h1, h2, h3 := hs[0], hs[1], hs[2], hs[3]
 	if weights == nil {
-		var n int64
+		var cells int64
 		var mm uint64
-		for i, v := range vals {
+		for _, v := range vals {
 			d := 0 - v
 			if d != d { // NaN
-				if bins != nil {
-					bins[i] = -1
-				}
 				continue
 			}
-			n++
-			var j int
+			cells++
+			j := 0
 			if d < 1<<27 {
 				// distBin, whose clamp is not reached below 2^27 m.
 				if d >= 1 {
@@ -473,14 +454,18 @@ func valueSums(hist []int64, bins []int32, vals []float64, weights []int64, w in
 				s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
 				s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
 			}
-			if h != nil {
-				h[j] += w
-			}
-			if bins != nil {
-				bins[i] = int32(j)
+			h0[j] += w
+			if n > 1 {
+				h1[j] += w
+				if n > 2 {
+					h2[j] += w
+					if n > 3 {
+						h3[j] += w
+					}
+				}
 			}
 		}
-		s.area = n * w
+		s.area = cells * w
 		ph, pl := bits.Mul64(mm, uint64(w))
 		var carry uint64
 		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
@@ -491,9 +476,6 @@ func valueSums(hist []int64, bins []int32, vals []float64, weights []int64, w in
 	for i, v := range vals {
 		d := 0 - v
 		if d != d {
-			if bins != nil {
-				bins[i] = -1
-			}
 			continue
 		}
 		wi := weights[i]
@@ -503,11 +485,15 @@ func valueSums(hist []int64, bins []int32, vals []float64, weights []int64, w in
 		var carry uint64
 		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
 		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
-		if h != nil {
-			h[j] += wi
-		}
-		if bins != nil {
-			bins[i] = int32(j)
+		h0[j] += wi
+		if n > 1 {
+			h1[j] += wi
+			if n > 2 {
+				h2[j] += wi
+				if n > 3 {
+					h3[j] += wi
+				}
+			}
 		}
 	}
 	return s

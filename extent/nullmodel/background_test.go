@@ -380,3 +380,72 @@ func TestRowSetValuesEqual(t *testing.T) {
 		}
 	}
 }
+
+// TestTallyAddValues: runs added with AddValues (minus the distances, one
+// weight or one per cell, NaN cells, a few distances beyond 2^27 m whose
+// products take 128 bits, sets of up to 10 extents in any order, more
+// distinct sets than a partial sum keeps as classes, half the runs in a
+// second partial sum) encode byte for byte as the same runs prepared as
+// Rows and added extent by extent with Add.
+func TestTallyAddValues(t *testing.T) {
+	r := rand.New(rand.NewPCG(41, 42))
+	var vals, each Background
+	sets := map[string]bool{}
+	far := 0
+	for range 600 {
+		n := 1 + r.IntN(300)
+		d, v, w := make([]float64, n), make([]float64, n), make([]int64, n)
+		one := r.IntN(2) == 0
+		for i := range d {
+			d[i], w[i] = math.Exp(-2+18*r.Float64()), 1+r.Int64N(1e12)
+			switch r.IntN(40) {
+			case 0:
+				d[i] = math.NaN()
+			case 1:
+				d[i] = 0
+			case 2:
+				d[i] = 0x1p27 * (1 + 1e5*r.Float64()) // beyond the 64-bit sum
+				far++
+			}
+			v[i] = 0 - d[i]
+			if one {
+				w[i] = w[0]
+			}
+		}
+		var ks []int
+		var ks32 []int32
+		for _, k := range r.Perm(12)[:r.IntN(11)] {
+			ks, ks32 = append(ks, k), append(ks32, int32(k))
+		}
+		if len(ks) > 1 {
+			sets[fmt.Sprint(ks)] = true
+		}
+		var hold Tally
+		held := r.IntN(2) == 0
+		if held {
+			hold = vals.Tally()
+		}
+		ta, te := vals.Tally(), each.Tally()
+		if one {
+			ta.AddValues(ks32, v, nil, w[0])
+		} else {
+			ta.AddValues(ks32, v, w, -1)
+		}
+		var row Row
+		row.Set(d, w)
+		for _, k := range ks {
+			te.Add(k, &row, 0, n)
+		}
+		ta.Done()
+		te.Done()
+		if held {
+			hold.Done()
+		}
+	}
+	if len(sets) <= bgClassCap || far == 0 {
+		t.Fatalf("%d sets of extents, %d far cells: the test would not take every path", len(sets), far)
+	}
+	if !bytes.Equal(EncodeBackground(&vals), EncodeBackground(&each)) {
+		t.Error("AddValues encodes differently from Add extent by extent")
+	}
+}
