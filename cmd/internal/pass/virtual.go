@@ -149,7 +149,9 @@ type virtualSource struct {
 	bf     BoundedField
 	bins   Binner
 	lo, hi []float64
-	shown  []float64     // the midpoints of the cells' own bounds
+	shown  []float64     // shownValues' (made on first use)
+	last   []float64     // the last block's values (ReadBlock's buf)
+	moved  []movedCell   // the cells of the last block computed exactly
 	minHi  []float64     // per member: smallest upper bound in the block
 	maxLo  []float64     // per member: largest lower bound in the block
 	segLo  []float64     // per segment of the block: smallest lower bound
@@ -184,16 +186,13 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	} else {
 		s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
 	}
-	// The values shown to Options.Rows and the preview are the midpoints
-	// of the cells' own bounds, taken before exactExtremes: which cells it
-	// computes depends on the block and on the family around the cell
-	// (a shard's blocks are cut at its rows, and its family is clipped only
-	// in its rows), the bounds on the cell alone.
-	// The block's values are the same midpoints but at the cells
-	// exactExtremes computes, which it writes into buf.
+	// The block's values are the midpoints of the cells' own bounds but
+	// at the cells exactExtremes computes, which it writes into buf (and
+	// lists in s.moved with their midpoints, for shownValues: see there).
 	// The same loop keeps each row's extremes of the bounds (see
 	// exactExtremes).
-	shown, buf := s.shown[:w*h], buf[:w*h]
+	buf = buf[:w*h]
+	s.last, s.moved = buf, s.moved[:0]
 	if cap(s.whole) < h {
 		s.whole = make([]rowExtremes, h)
 	}
@@ -201,7 +200,7 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	for y := range h {
 		e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
 		los, his := lo[y*w:(y+1)*w], hi[y*w:(y+1)*w]
-		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
+		buf := buf[y*w : (y+1)*w]
 		for i, l := range los {
 			u := his[i]
 			if neg {
@@ -214,7 +213,7 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 			if m != u {
 				m = (m + u) / 2
 			}
-			shown[i], buf[i] = m, m
+			buf[i] = m
 			// NaN compares false: cells with no value are left out.
 			if u < e.minHi {
 				e.minHi = u
@@ -239,13 +238,34 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 // cells of a run (NaN cells left out; infinite when there is none).
 type rowExtremes struct{ minHi, maxLo, minLo, maxHi float64 }
 
+// movedCell is a cell of a block that exactExtremes computed: its index
+// in the block and the midpoint of its bounds it replaced.
+type movedCell struct {
+	i   int
+	mid float64
+}
+
 // shownValues returns the values of the last block for Options.Rows and
-// the preview (see ReadBlock), nil when they are the block's values.
+// the preview, nil when they are the block's values: the midpoints of the
+// cells' own bounds, not the values exactExtremes computed, since which
+// cells it computes depends on the block and on the family around the
+// cell (a shard's blocks are cut at its rows, and its family is clipped
+// only in its rows), the bounds on the cell alone. They are the block's
+// values with those cells' midpoints put back, made only when asked for
+// (the pass asks only when it has a preview or a row hook).
 func (s *virtualSource) shownValues(n int) []float64 {
-	if s.bf == nil {
+	if s.bf == nil || len(s.moved) == 0 {
 		return nil
 	}
-	return s.shown[:n]
+	if cap(s.shown) < n {
+		s.shown = make([]float64, VirtualBlock*VirtualBlock)
+	}
+	shown := s.shown[:n]
+	copy(shown, s.last[:n])
+	for _, c := range s.moved {
+		shown[c.i] = c.mid
+	}
+	return shown
 }
 
 // markNeed returns the need words of the block of w x h cells whose plan
@@ -318,7 +338,8 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 	tl := s.tally
 	for y := range h {
 		if tl != nil {
-			tl.begin(ws, y0+y, x0, s.shown[y*w:(y+1)*w])
+			// The midpoints: buf is not yet changed by the walk below.
+			tl.begin(ws, y0+y, x0, buf[y*w:(y+1)*w])
 		}
 		for j := sRow[y]; j < sRow[y+1]; j++ {
 			sg := segs[j]
@@ -387,6 +408,7 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 			for i := y*w + int(sg.x0); i < y*w+int(sg.x1); i++ {
 				if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
 					s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
+					s.moved = append(s.moved, movedCell{i, buf[i]})
 					lo[i], hi[i], buf[i] = s.one[0], s.one[0], s.one[0]
 				}
 			}
@@ -428,7 +450,6 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		if bf != nil {
 			src.bf, src.bins = bf, fb
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
-			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
 			if v.bg != nil {
 				src.tally = &rowTally{g: g, bg: v.bg}
