@@ -427,42 +427,69 @@ func (s runTotals) addTo(e *bgExtent) {
 // 64 bits (fewer than 2^27 cells: below 2^64) and multiplied by w once,
 // as Row does for a row of one weight; a cell at or beyond 2^27 m adds
 // its own product in 128 bits, as Row does for a row holding one (the
-// same integer mod 2^128).
+// same integer mod 2^128). Each cell of 0 <= d < 2^27 m is found by
+// nearCell, one loop per number of histograms; the others (NaN, far or
+// negative) by otherCell.
 func valueSums(hs *[4]*[histLen]int64, n int, vals []float64, weights []int64, w int64) runTotals {
 	var s runTotals
 	h0, h1, h2, h3 := hs[0], hs[1], hs[2], hs[3]
 	if weights == nil {
 		var cells int64
 		var mm uint64
-		for _, v := range vals {
-			d := 0 - v
-			if d != d { // NaN
-				continue
-			}
-			cells++
-			j := 0
-			if d < 1<<27 {
-				// distBin, whose clamp is not reached below 2^27 m.
-				if d >= 1 {
-					j = 1 + int((math.Float64bits(d)-oneBits)>>binShift)
+		switch n {
+		case 1:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
 				}
-				mm += roundMM(d)
-			} else {
-				j = distBin(d)
-				ph, pl := bits.Mul64(roundMM(d), uint64(w))
-				var carry uint64
-				s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
-				s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
 			}
-			h0[j] += w
-			if n > 1 {
+		case 2:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
 				h1[j] += w
-				if n > 2 {
-					h2[j] += w
-					if n > 3 {
-						h3[j] += w
-					}
+			}
+		case 3:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
 				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+				h1[j] += w
+				h2[j] += w
+			}
+		default:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+				h1[j] += w
+				h2[j] += w
+				h3[j] += w
 			}
 		}
 		s.area = cells * w
@@ -497,6 +524,52 @@ func valueSums(hs *[4]*[histLen]int64, n int, vals []float64, weights []int64, w
 		}
 	}
 	return s
+}
+
+// nearCell returns distBin(d) and roundMM(d) for 0 <= d < 2^27 (m), with
+// no conversion between integers and floats: x = d*1000 is below 2^37, so
+// y = x + 2^52 (rounded to nearest, ties to even: each float64 in [2^52,
+// 2^53) is an integer) holds the integer r nearest to x in its mantissa,
+// and x - r (exact) is 1/2 only at a tie that went down to an even r,
+// where rounding half away from zero (roundMM) takes r + 1. The explicit
+// float64 conversions keep the products and sums from being fused.
+func nearCell(d float64) (int, uint64) {
+	x := float64(d * 1000)
+	y := float64(x + 0x1p52)
+	mm := math.Float64bits(y) - 0x4330000000000000 // math.Float64bits(0x1p52)
+	if x-(y-0x1p52) >= 0.5 {
+		mm++
+	}
+	j := 0
+	if d >= 1 {
+		// distBin, whose clamp is not reached below 2^27 m.
+		j = 1 + int((math.Float64bits(d)-oneBits)>>binShift)
+	}
+	return j, mm
+}
+
+// otherCell is valueSums' walk for a cell of one weight w whose distance
+// d is not in [0, 2^27): NaN (left out, 0 returned) or, which a distance
+// never is, negative (its millimetres added to mm as Row adds them) or
+// at least 2^27 m (its product added to s in 128 bits, as Row does for a
+// row holding such a cell); it returns the cells counted.
+func (s *runTotals) otherCell(d float64, w int64, mm *uint64, hs *[4]*[histLen]int64, n int) int64 {
+	if d != d {
+		return 0
+	}
+	if d < 1<<27 {
+		*mm += roundMM(d)
+	} else {
+		ph, pl := bits.Mul64(roundMM(d), uint64(w))
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+	}
+	j := distBin(d)
+	for _, h := range hs[:n] {
+		h[j] += w
+	}
+	return 1
 }
 
 // addHistConst adds w at bin j of each of the 2 or 3 histograms hs (each

@@ -406,6 +406,8 @@ func TestTallyAddValues(t *testing.T) {
 			case 2:
 				d[i] = 0x1p27 * (1 + 1e5*r.Float64()) // beyond the 64-bit sum
 				far++
+			case 3:
+				d[i] = float64(2*r.IntN(1e6)+1) / 16 // d*1000 a tie
 			}
 			v[i] = 0 - d[i]
 			if one {
@@ -448,4 +450,137 @@ func TestTallyAddValues(t *testing.T) {
 	if !bytes.Equal(EncodeBackground(&vals), EncodeBackground(&each)) {
 		t.Error("AddValues encodes differently from Add extent by extent")
 	}
+}
+
+// TestNearCell: nearCell gives distBin's bin and roundMM's millimetres
+// for distances in [0, 2^27) m: random ones over every octave, exact
+// ties (d*1000 = k + 1/2 for even and odd k, where rounding to even and
+// half away from zero differ), the float64s next to ties and to bin
+// edges, and the ends of the range.
+func TestNearCell(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	check := func(d float64) {
+		t.Helper()
+		if !(d >= 0 && d < 1<<27) {
+			return
+		}
+		j, mm := nearCell(d)
+		if j != distBin(d) || mm != roundMM(d) {
+			t.Fatalf("nearCell(%v) = %d, %d; want %d, %d", d, j, mm, distBin(d), roundMM(d))
+		}
+	}
+	ties := 0
+	for m := range 20000 {
+		// (2m+1)/16 m is (2m+1) * 62.5 mm: a tie, above an even or an
+		// odd number of millimetres.
+		d := float64(2*m+1) / 16
+		if x := d * 1000; x-math.Floor(x) == 0.5 {
+			ties++
+		}
+		check(d)
+		check(math.Nextafter(d, 0))
+		check(math.Nextafter(d, 1<<27))
+	}
+	if ties < 10000 {
+		t.Fatalf("only %d ties", ties)
+	}
+	for range 200000 {
+		d := math.Ldexp(r.Float64(), r.IntN(40)-12)
+		check(d)
+		check(math.Floor(d*1000)/1000 + 0.0005)
+	}
+	for j := 1; j < histLen-1; j += 7 {
+		lo, _ := binEdges(j)
+		check(lo)
+		check(math.Nextafter(lo, 0))
+	}
+	check(0)
+	check(math.Copysign(0, -1))
+	check(math.Nextafter(1<<27, 0))
+	check(1)
+	check(math.Nextafter(1, 0))
+}
+
+// BenchmarkTallyRuns compares the two ways a pass tallies a block row of
+// the distance-only null into a Background: a Row prepared over the whole
+// row of 240 cells, then each of its segments added with AddAll (the row
+// hook's way), and each segment added with AddValues in one walk (the
+// Virtual's source's way). The rows are like a 27-million-cell study's
+// with 20 extents in 4 nested groups: smooth distances, one weight, 1 to
+// 3 segments a row going to 1, 2 or 3 extents of some 40 sets. Reported
+// per cell; both tally the same sums (TestTallyAddValues).
+func BenchmarkTallyRuns(b *testing.B) {
+	const w, rows = 240, 4096
+	r := rand.New(rand.NewPCG(5, 6))
+	type seg struct {
+		a, b int
+		ks   []int
+		ks32 []int32
+	}
+	vals := make([][]float64, rows)
+	segs := make([][]seg, rows)
+	for y := range rows {
+		vals[y] = make([]float64, w)
+		d0, step := 1e3+3e5*r.Float64(), 2e3*(r.Float64()-0.5)
+		for x := range vals[y] {
+			vals[y][x] = 0 - math.Abs(d0+step*float64(x))
+		}
+		cuts := []int{0}
+		for range r.IntN(3) {
+			cuts = append(cuts, 1+r.IntN(w-1))
+		}
+		slices.Sort(cuts)
+		cuts = append(cuts, w)
+		for i := 0; i+1 < len(cuts); i++ {
+			if cuts[i] == cuts[i+1] {
+				continue
+			}
+			var ks []int
+			switch q := r.IntN(20); {
+			case q < 11:
+				ks = []int{19}
+			case q < 13:
+				ks = []int{10 + r.IntN(8), 19}
+			default:
+				ks = []int{r.IntN(10), 10 + r.IntN(8), 18}
+			}
+			var ks32 []int32
+			for _, k := range ks {
+				ks32 = append(ks32, int32(k))
+			}
+			segs[y] = append(segs[y], seg{cuts[i], cuts[i+1], ks, ks32})
+		}
+	}
+	weights := make([]int64, w)
+	for i := range weights {
+		weights[i] = 123456789
+	}
+	b.Run("row+AddAll", func(b *testing.B) {
+		var bg Background
+		var row Row
+		for b.Loop() {
+			for y := range rows {
+				row.SetValuesEqual(vals[y], weights)
+				t := bg.Tally()
+				for _, s := range segs[y] {
+					t.AddAll(s.ks, &row, s.a, s.b)
+				}
+				t.Done()
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(w*rows), "ns/cell")
+	})
+	b.Run("AddValues", func(b *testing.B) {
+		var bg Background
+		for b.Loop() {
+			for y := range rows {
+				t := bg.Tally()
+				for _, s := range segs[y] {
+					t.AddValues(s.ks32, vals[y][s.a:s.b], nil, weights[0])
+				}
+				t.Done()
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(w*rows), "ns/cell")
+	})
 }
