@@ -361,9 +361,9 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, neg bool, lo, hi, buf []
 			segLo[j], segHi[j] = e.minLo, e.maxHi
 		}
 		fillNaN(row[x:])
-		if tl != nil {
-			tl.end()
-		}
+	}
+	if tl != nil {
+		tl.end()
 	}
 	// Each member's extremes from its signatures', then each signature's
 	// thresholds from its members'.
