@@ -344,6 +344,234 @@ func (t Tally) AddAll(ks []int, r *Row, lo, hi int) {
 	}
 }
 
+// AddValues adds the cells of one run to each extent of ks (each >= 0,
+// none twice; a set is matched as given, as AddAll's): the cells of
+// minus value vals[i] (the null model's values, minus the distances; NaN
+// cells are skipped), each of weight weights[i], or of weight w when
+// weights is nil. It is AddAll on a Row set from the run alone, without
+// the Row: each cell's millimetres and bin are found in the same walk
+// that adds its weight to the histograms (of up to 4 extents at once, or
+// of the set's class), and the run's sums are added up as they go (no
+// prefix sums). The sums are the same integers as AddAll's (exact mod
+// 2^128 either way: a run of one weight sums its millimetres in 64 bits,
+// below 2^64 for fewer than 2^27 cells of distances below 2^27 m, and
+// multiplies once, as Row does; a farther cell adds its own 128-bit
+// product), so the encoding is the same byte for byte.
+func (t Tally) AddValues(ks []int32, vals []float64, weights []int64, w int64) {
+	if len(ks) == 0 || len(vals) == 0 {
+		return
+	}
+	for len(vals) > maxConstRow {
+		// Runs are block rows in a pass: this only bounds the 64-bit sum.
+		t.AddValues(ks, vals[:maxConstRow], weightsHead(weights, maxConstRow), w)
+		vals, weights = vals[maxConstRow:], weightsTail(weights, maxConstRow)
+	}
+	var hs [4]*[histLen]int64
+	if len(ks) > 1 {
+		if c := t.class32(ks); c != nil {
+			hs[0] = (*[histLen]int64)(c.ext.hist)
+			valueSums(&hs, 1, vals, weights, w).addTo(&c.ext)
+			return
+		}
+	}
+	var es [4]*bgExtent
+	for len(ks) > 0 {
+		n := min(len(ks), len(hs))
+		for _, k := range ks[:n] {
+			t.ext(int(k)) // may grow the partial sum's extents: pointers after
+		}
+		for q, k := range ks[:n] {
+			es[q] = &t.sh.ext[k]
+			hs[q] = (*[histLen]int64)(es[q].hist)
+		}
+		s := valueSums(&hs, n, vals, weights, w)
+		for _, e := range es[:n] {
+			s.addTo(e)
+		}
+		ks = ks[n:]
+	}
+}
+
+func weightsHead(w []int64, n int) []int64 {
+	if w == nil {
+		return nil
+	}
+	return w[:n]
+}
+
+func weightsTail(w []int64, n int) []int64 {
+	if w == nil {
+		return nil
+	}
+	return w[n:]
+}
+
+// runTotals are a run's area and 128-bit sum of weight x millimetres.
+type runTotals struct {
+	area         int64
+	sumHi, sumLo uint64
+}
+
+// addTo adds the run's sums to e's (wrapping as runSums does).
+func (s runTotals) addTo(e *bgExtent) {
+	e.area += s.area
+	var carry uint64
+	e.sumLo, carry = bits.Add64(e.sumLo, s.sumLo, 0)
+	e.sumHi, _ = bits.Add64(e.sumHi, s.sumHi, carry)
+}
+
+// valueSums walks the cells of AddValues once: each cell of minus value
+// vals[i] (NaN skipped) adds its weight at its bin of the histograms
+// hs[:n] (1 <= n <= 4), and the run's sums are returned. One weight w
+// (weights nil): the millimetres of the cells below 2^27 m are summed in
+// 64 bits (fewer than 2^27 cells: below 2^64) and multiplied by w once,
+// as Row does for a row of one weight; a cell at or beyond 2^27 m adds
+// its own product in 128 bits, as Row does for a row holding one (the
+// same integer mod 2^128). Each cell of 0 <= d < 2^27 m is found by
+// nearCell, one loop per number of histograms; the others (NaN, far or
+// negative) by otherCell.
+func valueSums(hs *[4]*[histLen]int64, n int, vals []float64, weights []int64, w int64) runTotals {
+	var s runTotals
+	h0, h1, h2, h3 := hs[0], hs[1], hs[2], hs[3]
+	if weights == nil {
+		var cells int64
+		var mm uint64
+		switch n {
+		case 1:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+			}
+		case 2:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+				h1[j] += w
+			}
+		case 3:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+				h1[j] += w
+				h2[j] += w
+			}
+		default:
+			for _, v := range vals {
+				d := 0 - v
+				if !(d >= 0 && d < 1<<27) {
+					cells += s.otherCell(d, w, &mm, hs, n)
+					continue
+				}
+				j, m := nearCell(d)
+				mm += m
+				cells++
+				h0[j] += w
+				h1[j] += w
+				h2[j] += w
+				h3[j] += w
+			}
+		}
+		s.area = cells * w
+		ph, pl := bits.Mul64(mm, uint64(w))
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+		return s
+	}
+	weights = weights[:len(vals)]
+	for i, v := range vals {
+		d := 0 - v
+		if d != d {
+			continue
+		}
+		wi := weights[i]
+		j := distBin(d)
+		ph, pl := bits.Mul64(roundMM(d), uint64(wi))
+		s.area += wi
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+		h0[j] += wi
+		if n > 1 {
+			h1[j] += wi
+			if n > 2 {
+				h2[j] += wi
+				if n > 3 {
+					h3[j] += wi
+				}
+			}
+		}
+	}
+	return s
+}
+
+// nearCell returns distBin(d) and roundMM(d) for 0 <= d < 2^27 (m), with
+// no conversion between integers and floats: x = d*1000 is below 2^37, so
+// y = x + 2^52 (rounded to nearest, ties to even: each float64 in [2^52,
+// 2^53) is an integer) holds the integer r nearest to x in its mantissa,
+// and x - r (exact) is 1/2 only at a tie that went down to an even r,
+// where rounding half away from zero (roundMM) takes r + 1. The explicit
+// float64 conversions keep the products and sums from being fused.
+func nearCell(d float64) (int, uint64) {
+	x := float64(d * 1000)
+	y := float64(x + 0x1p52)
+	mm := math.Float64bits(y) - 0x4330000000000000 // math.Float64bits(0x1p52)
+	if x-(y-0x1p52) >= 0.5 {
+		mm++
+	}
+	j := 0
+	if d >= 1 {
+		// distBin, whose clamp is not reached below 2^27 m.
+		j = 1 + int((math.Float64bits(d)-oneBits)>>binShift)
+	}
+	return j, mm
+}
+
+// otherCell is valueSums' walk for a cell of one weight w whose distance
+// d is not in [0, 2^27): NaN (left out, 0 returned) or, which a distance
+// never is, negative (its millimetres added to mm as Row adds them) or
+// at least 2^27 m (its product added to s in 128 bits, as Row does for a
+// row holding such a cell); it returns the cells counted.
+func (s *runTotals) otherCell(d float64, w int64, mm *uint64, hs *[4]*[histLen]int64, n int) int64 {
+	if d != d {
+		return 0
+	}
+	if d < 1<<27 {
+		*mm += roundMM(d)
+	} else {
+		ph, pl := bits.Mul64(roundMM(d), uint64(w))
+		var carry uint64
+		s.sumLo, carry = bits.Add64(s.sumLo, pl, 0)
+		s.sumHi, _ = bits.Add64(s.sumHi, ph, carry)
+	}
+	j := distBin(d)
+	for _, h := range hs[:n] {
+		h[j] += w
+	}
+	return 1
+}
+
 // addHistConst adds w at bin j of each of the 2 or 3 histograms hs (each
 // histLen long) for every bin j >= 0 of bins: AddAll's walk for a row of
 // one weight, one loop per count with each histogram in a register and no
@@ -395,6 +623,36 @@ func (t Tally) class(ks []int) *bgClass {
 	c := &bgClass{ks: slices.Clone(ks), ext: bgExtent{hist: make([]int64, histLen)}}
 	sh.classes = append(sh.classes, c)
 	return c
+}
+
+// class32 is class for extents given as int32s.
+func (t Tally) class32(ks []int32) *bgClass {
+	sh := t.sh
+	for _, c := range sh.classes {
+		if len(c.ks) == len(ks) && equal32(c.ks, ks) {
+			return c
+		}
+	}
+	if len(sh.classes) == bgClassCap {
+		return nil
+	}
+	c := &bgClass{ks: make([]int, len(ks)), ext: bgExtent{hist: make([]int64, histLen)}}
+	for i, k := range ks {
+		c.ks[i] = int(k)
+	}
+	sh.classes = append(sh.classes, c)
+	return c
+}
+
+// equal32 reports whether a and b (of one length) hold the same extents
+// in the same order.
+func equal32(a []int, b []int32) bool {
+	for i, k := range b {
+		if a[i] != int(k) {
+			return false
+		}
+	}
+	return true
 }
 
 // ext returns extent k's partial sums, made on first use.

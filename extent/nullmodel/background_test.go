@@ -380,3 +380,207 @@ func TestRowSetValuesEqual(t *testing.T) {
 		}
 	}
 }
+
+// TestTallyAddValues: runs added with AddValues (minus the distances, one
+// weight or one per cell, NaN cells, a few distances beyond 2^27 m whose
+// products take 128 bits, sets of up to 10 extents in any order, more
+// distinct sets than a partial sum keeps as classes, half the runs in a
+// second partial sum) encode byte for byte as the same runs prepared as
+// Rows and added extent by extent with Add.
+func TestTallyAddValues(t *testing.T) {
+	r := rand.New(rand.NewPCG(41, 42))
+	var vals, each Background
+	sets := map[string]bool{}
+	far := 0
+	for range 600 {
+		n := 1 + r.IntN(300)
+		d, v, w := make([]float64, n), make([]float64, n), make([]int64, n)
+		one := r.IntN(2) == 0
+		for i := range d {
+			d[i], w[i] = math.Exp(-2+18*r.Float64()), 1+r.Int64N(1e12)
+			switch r.IntN(40) {
+			case 0:
+				d[i] = math.NaN()
+			case 1:
+				d[i] = 0
+			case 2:
+				d[i] = 0x1p27 * (1 + 1e5*r.Float64()) // beyond the 64-bit sum
+				far++
+			case 3:
+				d[i] = float64(2*r.IntN(1e6)+1) / 16 // d*1000 a tie
+			}
+			v[i] = 0 - d[i]
+			if one {
+				w[i] = w[0]
+			}
+		}
+		var ks []int
+		var ks32 []int32
+		for _, k := range r.Perm(12)[:r.IntN(11)] {
+			ks, ks32 = append(ks, k), append(ks32, int32(k))
+		}
+		if len(ks) > 1 {
+			sets[fmt.Sprint(ks)] = true
+		}
+		var hold Tally
+		held := r.IntN(2) == 0
+		if held {
+			hold = vals.Tally()
+		}
+		ta, te := vals.Tally(), each.Tally()
+		if one {
+			ta.AddValues(ks32, v, nil, w[0])
+		} else {
+			ta.AddValues(ks32, v, w, -1)
+		}
+		var row Row
+		row.Set(d, w)
+		for _, k := range ks {
+			te.Add(k, &row, 0, n)
+		}
+		ta.Done()
+		te.Done()
+		if held {
+			hold.Done()
+		}
+	}
+	if len(sets) <= bgClassCap || far == 0 {
+		t.Fatalf("%d sets of extents, %d far cells: the test would not take every path", len(sets), far)
+	}
+	if !bytes.Equal(EncodeBackground(&vals), EncodeBackground(&each)) {
+		t.Error("AddValues encodes differently from Add extent by extent")
+	}
+}
+
+// TestNearCell: nearCell gives distBin's bin and roundMM's millimetres
+// for distances in [0, 2^27) m: random ones over every octave, exact
+// ties (d*1000 = k + 1/2 for even and odd k, where rounding to even and
+// half away from zero differ), the float64s next to ties and to bin
+// edges, and the ends of the range.
+func TestNearCell(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	check := func(d float64) {
+		t.Helper()
+		if !(d >= 0 && d < 1<<27) {
+			return
+		}
+		j, mm := nearCell(d)
+		if j != distBin(d) || mm != roundMM(d) {
+			t.Fatalf("nearCell(%v) = %d, %d; want %d, %d", d, j, mm, distBin(d), roundMM(d))
+		}
+	}
+	ties := 0
+	for m := range 20000 {
+		// (2m+1)/16 m is (2m+1) * 62.5 mm: a tie, above an even or an
+		// odd number of millimetres.
+		d := float64(2*m+1) / 16
+		if x := d * 1000; x-math.Floor(x) == 0.5 {
+			ties++
+		}
+		check(d)
+		check(math.Nextafter(d, 0))
+		check(math.Nextafter(d, 1<<27))
+	}
+	if ties < 10000 {
+		t.Fatalf("only %d ties", ties)
+	}
+	for range 200000 {
+		d := math.Ldexp(r.Float64(), r.IntN(40)-12)
+		check(d)
+		check(math.Floor(d*1000)/1000 + 0.0005)
+	}
+	for j := 1; j < histLen-1; j += 7 {
+		lo, _ := binEdges(j)
+		check(lo)
+		check(math.Nextafter(lo, 0))
+	}
+	check(0)
+	check(math.Copysign(0, -1))
+	check(math.Nextafter(1<<27, 0))
+	check(1)
+	check(math.Nextafter(1, 0))
+}
+
+// BenchmarkTallyRuns compares the two ways a pass tallies a block row of
+// the distance-only null into a Background: a Row prepared over the whole
+// row of 240 cells, then each of its segments added with AddAll (the row
+// hook's way), and each segment added with AddValues in one walk (the
+// Virtual's source's way). The rows are like a 27-million-cell study's
+// with 20 extents in 4 nested groups: smooth distances, one weight, 1 to
+// 3 segments a row going to 1, 2 or 3 extents of some 40 sets. Reported
+// per cell; both tally the same sums (TestTallyAddValues).
+func BenchmarkTallyRuns(b *testing.B) {
+	const w, rows = 240, 4096
+	r := rand.New(rand.NewPCG(5, 6))
+	type seg struct {
+		a, b int
+		ks   []int
+		ks32 []int32
+	}
+	vals := make([][]float64, rows)
+	segs := make([][]seg, rows)
+	for y := range rows {
+		vals[y] = make([]float64, w)
+		d0, step := 1e3+3e5*r.Float64(), 2e3*(r.Float64()-0.5)
+		for x := range vals[y] {
+			vals[y][x] = 0 - math.Abs(d0+step*float64(x))
+		}
+		cuts := []int{0}
+		for range r.IntN(3) {
+			cuts = append(cuts, 1+r.IntN(w-1))
+		}
+		slices.Sort(cuts)
+		cuts = append(cuts, w)
+		for i := 0; i+1 < len(cuts); i++ {
+			if cuts[i] == cuts[i+1] {
+				continue
+			}
+			var ks []int
+			switch q := r.IntN(20); {
+			case q < 11:
+				ks = []int{19}
+			case q < 13:
+				ks = []int{10 + r.IntN(8), 19}
+			default:
+				ks = []int{r.IntN(10), 10 + r.IntN(8), 18}
+			}
+			var ks32 []int32
+			for _, k := range ks {
+				ks32 = append(ks32, int32(k))
+			}
+			segs[y] = append(segs[y], seg{cuts[i], cuts[i+1], ks, ks32})
+		}
+	}
+	weights := make([]int64, w)
+	for i := range weights {
+		weights[i] = 123456789
+	}
+	b.Run("row+AddAll", func(b *testing.B) {
+		var bg Background
+		var row Row
+		for b.Loop() {
+			for y := range rows {
+				row.SetValuesEqual(vals[y], weights)
+				t := bg.Tally()
+				for _, s := range segs[y] {
+					t.AddAll(s.ks, &row, s.a, s.b)
+				}
+				t.Done()
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(w*rows), "ns/cell")
+	})
+	b.Run("AddValues", func(b *testing.B) {
+		var bg Background
+		for b.Loop() {
+			for y := range rows {
+				t := bg.Tally()
+				for _, s := range segs[y] {
+					t.AddValues(s.ks32, vals[y][s.a:s.b], nil, weights[0])
+				}
+				t.Done()
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(w*rows), "ns/cell")
+	})
+}

@@ -289,23 +289,36 @@ func pathBound(lat1, lon1, lat2, lon2 float64) float64 {
 // other tiles. It returns 0 when no tile can be measured.
 func (f *Field) FarthestBound(width, height, step int) float64 {
 	step = max(step, 1)
-	rows := map[int][2][]float64{}
-	row := func(r int) ([]float64, []float64) {
-		if v, ok := rows[r]; ok {
-			return v[0], v[1]
+	// The centres of a tile row's middle, top and bottom rows, each
+	// computed into buffers kept from one tile row to the next (fresh
+	// ones per row cost page faults); a row met twice in a tile row is
+	// taken from the earlier slot (the rows of earlier tile rows, left in
+	// the slots, are all above r0).
+	type slot struct {
+		r        int
+		lon, lat []float64
+	}
+	var slots [3]slot
+	for i := range slots {
+		slots[i] = slot{r: -1, lon: make([]float64, width), lat: make([]float64, width)}
+	}
+	row := func(i, r int) ([]float64, []float64) {
+		for _, s := range slots[:i] {
+			if s.r == r {
+				return s.lon, s.lat
+			}
 		}
-		lo, la := make([]float64, width), make([]float64, width)
-		f.centres(r, 0, width, lo, la)
-		rows[r] = [2][]float64{lo, la}
-		return lo, la
+		s := &slots[i]
+		s.r = r
+		f.centres(r, 0, width, s.lon, s.lat)
+		return s.lon, s.lat
 	}
 	far := 0.0
 	for r0 := 0; r0 < height; r0 += step {
 		r1 := min(r0+step, height)
-		clear(rows)
-		mlon, mlat := row((r0 + r1) / 2)
-		tlon, tlat := row(r0)
-		blon, blat := row(r1 - 1)
+		mlon, mlat := row(0, (r0+r1)/2)
+		tlon, tlat := row(1, r0)
+		blon, blat := row(2, r1-1)
 		for c0 := 0; c0 < width; c0 += step {
 			c1 := min(c0+step, width)
 			cc := (c0 + c1) / 2

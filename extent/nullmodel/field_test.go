@@ -193,3 +193,66 @@ func TestPathBound(t *testing.T) {
 		}
 	}
 }
+
+// TestFarthestBoundRows: FarthestBound, which keeps three rows of cell
+// centres from one tile row to the next, gives the value of a direct
+// computation with fresh centres for every tile (the maximum over tiles
+// of d + 1.02 rho + 1), bit for bit, on grids whose last tile row or
+// column is short, of one row, and with a step of 1, on a grid whose
+// first column's centres have no position (NaN: its tiles are skipped).
+func TestFarthestBoundRows(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	var lats, lons []float64
+	for range 40 {
+		lats, lons = append(lats, 30+40*r.Float64()), append(lons, -20+60*r.Float64())
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const deg = 0.5
+	centres := func(row, c0, c1 int, lons, lats []float64) {
+		lonLatGrid(-25, 75, deg)(row, c0, c1, lons, lats)
+		for i := range lats[:c1-c0] {
+			if lons[i] < -24.5 {
+				lats[i], lons[i] = math.NaN(), math.NaN()
+			}
+		}
+	}
+	f := New(ix, centres)
+	at := func(row, col int) (lat, lon float64) {
+		lo, la := make([]float64, 1), make([]float64, 1)
+		centres(row, col, col+1, lo, la)
+		return la[0], lo[0]
+	}
+	for _, tc := range []struct{ w, h, step int }{{130, 97, 16}, {130, 97, 1}, {37, 1, 8}, {20, 30, 16}, {64, 64, 32}} {
+		want := 0.0
+		for r0 := 0; r0 < tc.h; r0 += tc.step {
+			r1 := min(r0+tc.step, tc.h)
+			for c0 := 0; c0 < tc.w; c0 += tc.step {
+				c1 := min(c0+tc.step, tc.w)
+				lat, lon := at((r0+r1)/2, (c0+c1)/2)
+				if math.IsNaN(lat) {
+					continue
+				}
+				rho, ok := 0.0, true
+				for _, rc := range [4][2]int{{r0, c0}, {r0, c1 - 1}, {r1 - 1, c0}, {r1 - 1, c1 - 1}} {
+					plat, plon := at(rc[0], rc[1])
+					if math.IsNaN(plat) {
+						ok = false
+						break
+					}
+					rho = math.Max(rho, geodesy.Distance(lat, lon, plat, plon))
+				}
+				if !ok {
+					continue
+				}
+				_, d := ix.Nearest(lat, lon, 0)
+				want = math.Max(want, d+rho*1.02+1)
+			}
+		}
+		if got := f.FarthestBound(tc.w, tc.h, tc.step); got != want || want == 0 {
+			t.Errorf("%d x %d, step %d: %v, want %v", tc.w, tc.h, tc.step, got, want)
+		}
+	}
+}

@@ -625,7 +625,8 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 					}
 				}
 				p.decode(b.buf)
-				if sh, ok := src.(shower); ok {
+				if sh, ok := src.(shower); ok && (opt.Preview != nil || opt.Rows != nil) {
+					// Only the preview and the row hook see them.
 					b.shown = sh.shownValues(b.w * b.h)
 				}
 				if !st.AnyValid {

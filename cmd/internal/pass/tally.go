@@ -78,50 +78,58 @@ func (v *Virtual) Tally(fam *extent.Family, bg *nullmodel.Background) {
 
 // rowTally is one worker's sorting-bias tally inside a Virtual's source:
 // begin a row, add each segment with its signature's members, end the
-// row. A row is prepared (nullmodel.Row) only when it has a segment, as
-// the pass calls its row hook only for those rows.
+// block. A row's weights are taken only when it has a segment, as the
+// pass calls its row hook only for those rows, and a partial sum is held
+// from the first segment of the block to its end. Each segment's cells
+// are added in one walk (Tally.AddValues: no prepared Row, whose prefix
+// sums would be those of the whole row when the segments, disjoint,
+// visit each cell once).
 type rowTally struct {
 	g       *extent.Grid
 	bg      *nullmodel.Background
 	ws      *workerState // the worker's, for its row weights
 	row, c0 int
 	vals    []float64
-	set     bool // the row is prepared and t held
+	weighed bool // the row's weights are taken
+	held    bool // t is held
 	t       nullmodel.Tally
-	r       nullmodel.Row
-	ks      []int // the members of the segment added
+	w       []int64 // the row's weights, nil when every one is w0
+	w0      int64
 }
 
+// begin starts a row of the block: its first column c0 and its values.
 func (tl *rowTally) begin(ws *workerState, row, c0 int, vals []float64) {
-	tl.ws, tl.row, tl.c0, tl.vals, tl.set = ws, row, c0, vals, false
+	tl.ws, tl.row, tl.c0, tl.vals, tl.weighed = ws, row, c0, vals, false
 }
 
 // add adds cells a <= x < b of the row (columns relative to c0) to each
-// member of ms, preparing the row first.
+// member of ms.
 func (tl *rowTally) add(ms []int32, a, b int) {
-	if !tl.set {
+	if !tl.weighed {
 		// The weights the pass adds (the worker's, as scoreBlock takes
-		// them; Row copies what it keeps).
+		// them).
 		w, rowW := tl.ws.rowWeights(tl.g, tl.row, tl.c0, tl.c0+len(tl.vals))
-		if rowW >= 0 {
-			tl.r.SetValuesEqual(tl.vals, w) // every weight is rowW
-		} else {
-			tl.r.SetValues(tl.vals, w)
+		tl.w, tl.w0 = nil, rowW
+		if rowW < 0 {
+			tl.w = w
 		}
+		tl.weighed = true
+	}
+	if !tl.held {
 		tl.t = tl.bg.Tally()
-		tl.set = true
+		tl.held = true
 	}
-	tl.ks = tl.ks[:0]
-	for _, k := range ms {
-		tl.ks = append(tl.ks, int(k))
+	var w []int64
+	if tl.w != nil {
+		w = tl.w[a:b]
 	}
-	tl.t.AddAll(tl.ks, &tl.r, a, b)
+	tl.t.AddValues(ms, tl.vals[a:b], w, tl.w0)
 }
 
-// end releases the partial sum.
+// end releases the partial sum at the end of a block.
 func (tl *rowTally) end() {
-	if tl.set {
+	if tl.held {
 		tl.t.Done()
-		tl.set = false
+		tl.held = false
 	}
 }

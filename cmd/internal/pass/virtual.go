@@ -149,14 +149,15 @@ type virtualSource struct {
 	bf     BoundedField
 	bins   Binner
 	lo, hi []float64
-	shown  []float64     // the midpoints of the cells' own bounds
+	shown  []float64     // shownValues' (made on first use)
+	last   []float64     // the last block's values (ReadBlock's buf)
+	moved  []movedCell   // the cells of the last block computed exactly
 	minHi  []float64     // per member: smallest upper bound in the block
 	maxLo  []float64     // per member: largest lower bound in the block
 	segLo  []float64     // per segment of the block: smallest lower bound
 	segHi  []float64     // per segment of the block: largest upper bound
 	sigMn  []float64     // per signature: the largest of its members' minHi
 	sigMx  []float64     // per signature: the smallest of its members' maxLo
-	whole  []rowExtremes // per block row: the extremes of all its cells
 	one    [1]float64
 	tally  *rowTally // Virtual.Tally's, on the bounded path
 }
@@ -178,60 +179,20 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 	lo, hi := s.lo[:w*h], s.hi[:w*h]
 	neg := false
 	if nb, ok := s.bf.(negBounder); ok {
-		// The bounds of minus the values, negated in the walk below.
+		// The bounds of minus the values: exactExtremes negates them as
+		// it reads them.
 		nb.Bracket(x0, y0, w, h, need, s.bins, lo, hi)
 		neg = true
 	} else {
 		s.bf.Bounds(x0, y0, w, h, need, s.bins, lo, hi)
 	}
-	// The values shown to Options.Rows and the preview are the midpoints
-	// of the cells' own bounds, taken before exactExtremes: which cells it
-	// computes depends on the block and on the family around the cell
-	// (a shard's blocks are cut at its rows, and its family is clipped only
-	// in its rows), the bounds on the cell alone.
-	// The block's values are the same midpoints but at the cells
-	// exactExtremes computes, which it writes into buf.
-	// The same loop keeps each row's extremes of the bounds (see
-	// exactExtremes).
-	shown, buf := s.shown[:w*h], buf[:w*h]
-	if cap(s.whole) < h {
-		s.whole = make([]rowExtremes, h)
-	}
-	whole := s.whole[:h]
-	for y := range h {
-		e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
-		los, his := lo[y*w:(y+1)*w], hi[y*w:(y+1)*w]
-		shown, buf := shown[y*w:(y+1)*w], buf[y*w:(y+1)*w]
-		for i, l := range los {
-			u := his[i]
-			if neg {
-				// lo and hi bound minus the values: [0 - hi, 0 - lo]
-				// bounds the values, as Bounds would give them.
-				l, u = 0-u, 0-l
-				los[i], his[i] = l, u
-			}
-			m := l
-			if m != u {
-				m = (m + u) / 2
-			}
-			shown[i], buf[i] = m, m
-			// NaN compares false: cells with no value are left out.
-			if u < e.minHi {
-				e.minHi = u
-			}
-			if l > e.maxLo {
-				e.maxLo = l
-			}
-			if l < e.minLo {
-				e.minLo = l
-			}
-			if u > e.maxHi {
-				e.maxHi = u
-			}
-		}
-		whole[y] = e
-	}
-	s.exactExtremes(x0, y0, w, h, lo, hi, buf)
+	// The block's values are the midpoints of the cells' own bounds but
+	// at the cells exactExtremes computes (listed in s.moved with their
+	// midpoints, for shownValues: see there), NaN outside the segments;
+	// exactExtremes writes them all into buf.
+	buf = buf[:w*h]
+	s.last, s.moved = buf, s.moved[:0]
+	s.exactExtremes(x0, y0, w, h, neg, lo, hi, buf)
 	return nil
 }
 
@@ -239,13 +200,76 @@ func (s *virtualSource) ReadBlock(x0, y0, w, h int, buf []float64) error {
 // cells of a run (NaN cells left out; infinite when there is none).
 type rowExtremes struct{ minHi, maxLo, minLo, maxHi float64 }
 
+// midRun sets mid[i] to the midpoint of cell i's bounds of a run, lo[i]
+// <= value <= hi[i] (or, when neg, 0 - hi[i] <= value <= 0 - lo[i]: the
+// bounds of minus the values, as Bracket gives them), the bound itself
+// where the two are equal, and returns the run's extremes of the bounds.
+func midRun(neg bool, lo, hi, mid []float64) rowExtremes {
+	e := rowExtremes{minHi: math.Inf(1), maxLo: math.Inf(-1), minLo: math.Inf(1), maxHi: math.Inf(-1)}
+	hi, mid = hi[:len(lo)], mid[:len(lo)]
+	for i, l := range lo {
+		u := hi[i]
+		if neg {
+			l, u = 0-u, 0-l
+		}
+		m := l
+		if m != u {
+			m = (m + u) / 2
+		}
+		mid[i] = m
+		// NaN compares false: cells with no value are left out.
+		if u < e.minHi {
+			e.minHi = u
+		}
+		if l > e.maxLo {
+			e.maxLo = l
+		}
+		if l < e.minLo {
+			e.minLo = l
+		}
+		if u > e.maxHi {
+			e.maxHi = u
+		}
+	}
+	return e
+}
+
+// fillNaN sets every value of vals to NaN.
+func fillNaN(vals []float64) {
+	nan := math.NaN()
+	for i := range vals {
+		vals[i] = nan
+	}
+}
+
+// movedCell is a cell of a block that exactExtremes computed: its index
+// in the block and the midpoint of its bounds it replaced.
+type movedCell struct {
+	i   int
+	mid float64
+}
+
 // shownValues returns the values of the last block for Options.Rows and
-// the preview (see ReadBlock), nil when they are the block's values.
+// the preview, nil when they are the block's values: the midpoints of the
+// cells' own bounds, not the values exactExtremes computed, since which
+// cells it computes depends on the block and on the family around the
+// cell (a shard's blocks are cut at its rows, and its family is clipped
+// only in its rows), the bounds on the cell alone. They are the block's
+// values with those cells' midpoints put back, made only when asked for
+// (the pass asks only when it has a preview or a row hook).
 func (s *virtualSource) shownValues(n int) []float64 {
-	if s.bf == nil {
+	if s.bf == nil || len(s.moved) == 0 {
 		return nil
 	}
-	return s.shown[:n]
+	if cap(s.shown) < n {
+		s.shown = make([]float64, VirtualBlock*VirtualBlock)
+	}
+	shown := s.shown[:n]
+	copy(shown, s.last[:n])
+	for _, c := range s.moved {
+		shown[c.i] = c.mid
+	}
+	return shown
 }
 
 // markNeed returns the need words of the block of w x h cells whose plan
@@ -281,23 +305,25 @@ func (s *virtualSource) markNeed(w, h int) []uint64 {
 	return need
 }
 
-// exactExtremes computes exactly (lo = hi = buf = Fill's value) every cell of
-// the block that may hold the smallest or the largest value of a member
-// it is added to (see Virtual): those members are its segment's
-// signature. A first walk of the block's segments finds each segment's
-// extremes of the bounds (those ReadBlock kept of the whole row when the
-// segment is all of it), folded into each signature's and then each
-// member's smallest upper and largest lower bound in the block; a cell
-// may then hold a member's extreme when lo <= that member's smallest
-// upper bound or hi >= its largest lower bound for some member of its
-// signature, that is lo <= the largest of those smallest upper bounds or
-// hi >= the smallest of those largest lower bounds (sigMn, sigMx). The
-// second walk visits only the segments whose extremes reach them.
-// Comparisons and minima alone: the cells computed do not depend on the
-// order of the walk, and are those of a walk of each member's ring.
-// The sorting-bias tally adds each row's segments to their signatures in
-// the first walk.
-func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
+// exactExtremes writes the block's values into buf, the midpoints of the
+// cells' bounds (lo and hi as ReadBlock has them: see midRun for neg)
+// and NaN outside the block's segments, and computes exactly (buf =
+// Fill's value) every cell of the block that may hold the smallest or
+// the largest value of a member it is added to (see Virtual): those
+// members are its segment's signature. A first walk of the block's
+// segments sets their midpoints and finds each segment's extremes of the
+// bounds (midRun), folded into each signature's and then each member's
+// smallest upper and largest lower bound in the block; a cell may then
+// hold a member's extreme when lo <= that member's smallest upper bound
+// or hi >= its largest lower bound for some member of its signature,
+// that is lo <= the largest of those smallest upper bounds or hi >= the
+// smallest of those largest lower bounds (sigMn, sigMx). The second walk
+// visits only the segments whose extremes reach them. Comparisons and
+// minima alone: the cells computed do not depend on the order of the
+// walk, and are those of a walk of each member's ring. The sorting-bias
+// tally adds each segment's midpoints to its signature's members in the
+// first walk, right after they are set.
+func (s *virtualSource) exactExtremes(x0, y0, w, h int, neg bool, lo, hi, buf []float64) {
 	ws := s.ws
 	segs, sRow := ws.segs, ws.sRow
 	for k := range s.minHi {
@@ -317,45 +343,27 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 	segLo, segHi := s.segLo[:len(segs)], s.segHi[:len(segs)]
 	tl := s.tally
 	for y := range h {
+		row := buf[y*w : (y+1)*w]
 		if tl != nil {
-			tl.begin(ws, y0+y, x0, s.shown[y*w:(y+1)*w])
+			tl.begin(ws, y0+y, x0, row)
 		}
+		x := 0
 		for j := sRow[y]; j < sRow[y+1]; j++ {
 			sg := segs[j]
+			a, b := y*w+int(sg.x0), y*w+int(sg.x1)
+			fillNaN(row[x:sg.x0])
+			e := midRun(neg, lo[a:b], hi[a:b], buf[a:b])
+			x = int(sg.x1)
 			if tl != nil {
 				tl.add(ws.members(sg.sig), int(sg.x0), int(sg.x1))
 			}
-			var mn, mx, rl, rh float64
-			if sg.x0 == 0 && int(sg.x1) == w {
-				// The whole row: its extremes from ReadBlock's walk.
-				e := s.whole[y]
-				mn, mx, rl, rh = e.minHi, e.maxLo, e.minLo, e.maxHi
-			} else {
-				mn, mx, rl, rh = math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
-				a, b := y*w+int(sg.x0), y*w+int(sg.x1)
-				// NaN compares false: cells with no value are left out.
-				for i, l := range lo[a:b] {
-					u := hi[a+i]
-					if u < mn {
-						mn = u
-					}
-					if l > mx {
-						mx = l
-					}
-					if l < rl {
-						rl = l
-					}
-					if u > rh {
-						rh = u
-					}
-				}
-			}
-			sigMn[sg.sig], sigMx[sg.sig] = min(sigMn[sg.sig], mn), max(sigMx[sg.sig], mx)
-			segLo[j], segHi[j] = rl, rh
+			sigMn[sg.sig], sigMx[sg.sig] = min(sigMn[sg.sig], e.minHi), max(sigMx[sg.sig], e.maxLo)
+			segLo[j], segHi[j] = e.minLo, e.maxHi
 		}
-		if tl != nil {
-			tl.end()
-		}
+		fillNaN(row[x:])
+	}
+	if tl != nil {
+		tl.end()
 	}
 	// Each member's extremes from its signatures', then each signature's
 	// thresholds from its members'.
@@ -385,9 +393,14 @@ func (s *virtualSource) exactExtremes(x0, y0, w, h int, lo, hi, buf []float64) {
 				continue
 			}
 			for i := y*w + int(sg.x0); i < y*w+int(sg.x1); i++ {
-				if lo[i] != hi[i] && (lo[i] <= mn || hi[i] >= mx) {
+				l, u := lo[i], hi[i]
+				if neg {
+					l, u = 0-u, 0-l
+				}
+				if l != u && (l <= mn || u >= mx) {
 					s.v.field.Fill(x0+i%w, y0+i/w, 1, 1, nil, s.one[:])
-					lo[i], hi[i], buf[i] = s.one[0], s.one[0], s.one[0]
+					s.moved = append(s.moved, movedCell{i, buf[i]})
+					buf[i] = s.one[0]
 				}
 			}
 		}
@@ -428,7 +441,6 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		if bf != nil {
 			src.bf, src.bins = bf, fb
 			src.lo, src.hi = make([]float64, VirtualBlock*VirtualBlock), make([]float64, VirtualBlock*VirtualBlock)
-			src.shown = make([]float64, VirtualBlock*VirtualBlock)
 			src.minHi, src.maxLo = make([]float64, len(fam.Members)), make([]float64, len(fam.Members))
 			if v.bg != nil {
 				src.tally = &rowTally{g: g, bg: v.bg}
