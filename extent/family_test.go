@@ -634,9 +634,107 @@ func TestPolarCapProjected(t *testing.T) {
 		t.Fatalf("only %v cells checked", checked)
 	}
 	sq := filepath.Join(dir, "square.gpkg")
-	writeSquareGPKG(t, sq, 3413, 1.5e6)
+	writePolygonGPKG(t, sq, 3413, [][2]float64{{-1.5e6, -1.5e6}, {1.5e6, -1.5e6}, {1.5e6, 1.5e6}, {-1.5e6, 1.5e6}, {-1.5e6, -1.5e6}})
 	if _, err := Build(g, v, Spec{Region: sq, RegionBuffersKm: []float64{-100}}, nil, nil); err != nil {
 		t.Fatalf("a square round the pole in the raster's CRS: %v", err)
+	}
+}
+
+// projectRing returns the ring of longitude/latitude points lonlat in
+// the CRS EPSG:epsg (PROJ, through a grid in that CRS).
+func projectRing(t *testing.T, epsg int, lonlat [][2]float64) [][2]float64 {
+	t.Helper()
+	g, err := NewGrid(1, 1, [6]float64{0, 1, 0, 0, 0, -1}, fmt.Sprintf("EPSG:%d", epsg))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lons, lats := make([]float64, len(lonlat)), make([]float64, len(lonlat))
+	for i, p := range lonlat {
+		lons[i], lats[i] = p[0], p[1]
+	}
+	xs, ys := make([]float64, len(lonlat)), make([]float64, len(lonlat))
+	g.FromLonLat(lons, lats, xs, ys)
+	out := make([][2]float64, len(lonlat))
+	for i := range out {
+		out[i] = [2]float64{xs[i], ys[i]}
+	}
+	return out
+}
+
+// TestProjectedRegionAcrossAntimeridian: a region stored in a projected
+// CRS that runs across 180 degrees, on a latitude-longitude raster
+// running -180..180. A rectangle in the Pacific-centred Mercator
+// (EPSG:3832, its edges parallels and meridians) from 175 E to 175 W gives
+// every member the cells of the same rectangle written in
+// longitude/latitude as two polygons split at 180 (TestRegionSplitAt-
+// Antimeridian's form). A circle of latitude 70 S stored in the Antarctic
+// polar stereographic CRS (EPSG:3031, a vertex every half degree) covers
+// the cells south of 70 S, and its 200 km growth those within 200 km of
+// that parallel (the meridian arc, PROJ; cells within 30 km of either
+// line not checked). Before, both were refused as crossing the
+// antimeridian.
+func TestProjectedRegionAcrossAntimeridian(t *testing.T) {
+	dir := t.TempDir()
+	g, v := geoGrid(t, -180, 0, 0.5, 720, 180)
+	build := func(region string) *Family {
+		f, err := Build(g, v, Spec{Region: region, RegionBuffersKm: []float64{-100, 200}}, nil, nil)
+		if err != nil {
+			t.Fatalf("%s: %v", filepath.Base(region), err)
+		}
+		return f
+	}
+	rect := projectRing(t, 3832, [][2]float64{{175, -30}, {185, -30}, {185, -10}, {175, -10}, {175, -30}})
+	merc := filepath.Join(dir, "pacific.gpkg")
+	writePolygonGPKG(t, merc, 3832, rect)
+	split := writeGeoJSON(t, dir, "split.geojson", []string{"w", "e"}, [][][2]float64{
+		{{175, -30}, {180, -30}, {180, -10}, {175, -10}, {175, -30}},
+		{{-180, -30}, {-175, -30}, {-175, -10}, {-180, -10}, {-180, -30}},
+	})
+	fm, fs := build(merc), build(split)
+	for _, id := range []string{"base", "region_minus100km", "region_200km"} {
+		km, ks := memberIdx(t, fm, id), memberIdx(t, fs, id)
+		n := 0
+		for i := range g.Cells() {
+			if fm.Has(km, i) != fs.Has(ks, i) {
+				t.Fatalf("%s: cell %d (row %d col %d): %v from EPSG:3832, %v from the split rectangle", id, i, i/720, i%720, fm.Has(km, i), fs.Has(ks, i))
+			}
+			if fs.Has(ks, i) {
+				n++
+			}
+		}
+		if n == 0 {
+			t.Fatalf("%s: no cell", id)
+		}
+	}
+	var circle [][2]float64
+	for k := 0; k <= 720; k++ {
+		circle = append(circle, [2]float64{-180 + float64(k%720)*0.5, -70})
+	}
+	ant := filepath.Join(dir, "antarctic.gpkg")
+	writePolygonGPKG(t, ant, 3031, projectRing(t, 3031, circle))
+	f := build(ant)
+	base, grow := memberIdx(t, f, "base"), memberIdx(t, f, "region_200km")
+	checked := 0
+	for row := range 180 {
+		lat := -float64(row)*0.5 - 0.25
+		d := geodesy.Distance(lat, 0, -70, 0) / 1000
+		for col := 0; col < 720; col += 3 {
+			i := row*720 + col
+			if d > 30 {
+				if got, want := f.Has(base, i), lat < -70; got != want {
+					t.Fatalf("base at lat %.2f col %d (%.0f km from 70 S): %v, want %v", lat, col, d, got, want)
+				}
+			}
+			if math.Abs(d-200) > 30 && d > 30 {
+				checked++
+				if got, want := f.Has(grow, i), lat < -70 || d <= 200; got != want {
+					t.Fatalf("region_200km at lat %.2f col %d (%.0f km from 70 S): %v, want %v", lat, col, d, got, want)
+				}
+			}
+		}
+	}
+	if checked < 10000 {
+		t.Fatalf("only %d cells checked", checked)
 	}
 }
 

@@ -2,6 +2,7 @@ package extent
 
 import (
 	"fmt"
+	"strings"
 	"testing"
 
 	"github.com/airbusgeo/godal"
@@ -44,9 +45,9 @@ func sameMembership(a, b *Family) bool {
 	return true
 }
 
-// writeSquareGPKG writes a GeoPackage holding one square of half side
-// half (metres) centred on the origin of the CRS EPSG:epsg.
-func writeSquareGPKG(t *testing.T, path string, epsg int, half float64) {
+// writePolygonGPKG writes a GeoPackage holding one polygon feature with
+// the rings rings (coordinates in the CRS EPSG:epsg).
+func writePolygonGPKG(t *testing.T, path string, epsg int, rings ...[][2]float64) {
 	t.Helper()
 	Register()
 	sr, err := godal.NewSpatialRefFromEPSG(epsg)
@@ -58,12 +59,19 @@ func writeSquareGPKG(t *testing.T, path string, epsg int, half float64) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, err := ds.CreateLayer("square", sr, godal.GTPolygon)
+	layer, err := ds.CreateLayer("region", sr, godal.GTPolygon)
 	if err != nil {
 		t.Fatal(err)
 	}
-	wkt := fmt.Sprintf("POLYGON ((%[1]g %[1]g, %[2]g %[1]g, %[2]g %[2]g, %[1]g %[2]g, %[1]g %[1]g))", -half, half)
-	geom, err := godal.NewGeometryFromWKT(wkt, sr)
+	var rs []string
+	for _, r := range rings {
+		var pts []string
+		for _, p := range r {
+			pts = append(pts, fmt.Sprintf("%.10g %.10g", p[0], p[1]))
+		}
+		rs = append(rs, "("+strings.Join(pts, ", ")+")")
+	}
+	geom, err := godal.NewGeometryFromWKT("POLYGON ("+strings.Join(rs, ", ")+")", sr)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -207,6 +207,15 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		if err := geom.Reproject(g.srs); err != nil {
 			return nil, warns, fmt.Errorf("extent: %s unit %q: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", path, id, gdalmsg.Cause(err.Error()))
 		}
+		if !lsr.Geographic() && g.Geographic {
+			// A projected layer has no antimeridian of its own: its edges
+			// are short wherever they cross 180 degrees.
+			if u, err := unwrapRings(geom, g.srs); err != nil {
+				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+			} else if u != nil {
+				geom = u
+			}
+		}
 		s, err := shapeOf(geom, g)
 		if err != nil {
 			return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
@@ -406,30 +415,25 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 			if len(p) == 0 {
 				continue
 			}
+			// A copy of the polygon, holes and all, goes to each whole
+			// turn of longitude at which it meets the grid: one for most
+			// polygons; two for one that runs across the grid's edge
+			// meridian, such as a polygon round a pole written from -180
+			// to 180 on a grid that starts elsewhere, or a projected one
+			// across 180 degrees (unwrapRings). A polygon that meets the
+			// grid at no turn goes where its west end falls in the grid's
+			// range, near enough to matter to the buffers.
 			lo, hi := lonRange(p[0])
-			if hi-lo == 360 {
-				// A polygon around a pole written in one piece, from -180
-				// to 180: one turn wide, it covers every longitude, so a
-				// copy, holes and all, goes to each turn that meets the
-				// grid (two when the grid does not start at its west
-				// edge).
-				for k := math.Floor((west - hi) / 360); lo+360*k < east; k++ {
-					if hi+360*k > west {
-						out = append(out, shiftedPolygon(p, 360*k))
-					}
-				}
-				continue
-			}
-			for _, r := range p {
-				lo, _ := lonRange(r)
-				shift := wrapInto(lo, west) - lo
-				if shift != 0 {
-					for k := range r {
-						r[k][0] += shift
-					}
+			placed := false
+			for k := math.Floor((west - hi) / 360); lo+360*k < east; k++ {
+				if hi+360*k > west {
+					out = append(out, shiftedPolygon(p, 360*k))
+					placed = true
 				}
 			}
-			out = append(out, p)
+			if !placed {
+				out = append(out, shiftedPolygon(p, wrapInto(lo, west)-lo))
+			}
 		}
 		mp = out
 	}
@@ -597,6 +601,88 @@ func dropSeamCorners(r orb.Ring) orb.Ring {
 		return r
 	}
 	return append(out, out[0])
+}
+
+// unwrapRings returns geom (longitude/latitude in srs, projected there
+// from a layer in a projected CRS) with each ring's longitudes unwrapped:
+// every vertex moved by whole turns to within 180 degrees of the one
+// before it, so that a ring across the antimeridian runs on past 180 (its
+// edges are short in the layer's own CRS). A ring round a pole comes back
+// a turn away from where it started: it is closed along that pole's line
+// (the pole nearer its mean latitude), as a polygon round a pole written
+// in one piece. nil when no vertex moved.
+func unwrapRings(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	b, err := geom.WKB()
+	if err != nil {
+		return nil, err
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %w", err)
+	}
+	moved := false
+	ring := func(r orb.Ring) orb.Ring {
+		if len(r) < 2 {
+			return r
+		}
+		out := make(orb.Ring, len(r))
+		out[0] = r[0]
+		meanLat := 0.0
+		for i := 1; i < len(r); i++ {
+			lon := r[i][0]
+			for lon-out[i-1][0] > 180 {
+				lon -= 360
+			}
+			for lon-out[i-1][0] < -180 {
+				lon += 360
+			}
+			if lon != r[i][0] {
+				moved = true
+			}
+			out[i] = orb.Point{lon, r[i][1]}
+			meanLat += r[i][1]
+		}
+		if last := out[len(out)-1]; last[0] != out[0][0] {
+			pole := 90.0
+			if meanLat < 0 {
+				pole = -90
+			}
+			out = append(out[:len(out)-1:len(out)-1], last, orb.Point{last[0], pole}, orb.Point{out[0][0], pole}, out[0])
+		}
+		return out
+	}
+	poly := func(p orb.Polygon) orb.Polygon {
+		q := make(orb.Polygon, len(p))
+		for j, r := range p {
+			q[j] = ring(r)
+		}
+		return q
+	}
+	var ng orb.Geometry
+	switch v := og.(type) {
+	case orb.Polygon:
+		ng = poly(v)
+	case orb.MultiPolygon:
+		m := make(orb.MultiPolygon, len(v))
+		for i, p := range v {
+			m[i] = poly(p)
+		}
+		ng = m
+	default:
+		return nil, nil
+	}
+	if !moved {
+		return nil, nil
+	}
+	nb, err := wkb.Marshal(ng)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %w", err)
+	}
+	u, err := godal.NewGeometryFromWKB(nb, srs)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %s", gdalmsg.Cause(err.Error()))
+	}
+	return u, nil
 }
 
 // lonRange returns the smallest and largest longitude of r.
