@@ -147,8 +147,7 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
 // across the whole map (a polygon around a pole written in one piece): it
 // is a boundary unless that parallel is a pole line.
 func seamEdge(a, b orb.Point) bool {
-	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
-	return anti(a[0]) && a[0] == b[0] || math.Abs(a[1]) == 90 && a[1] == b[1]
+	return onAntimeridian(a[0]) && a[0] == b[0] || math.Abs(a[1]) == 90 && a[1] == b[1]
 }
 
 // pointBuffers adds, for each radius, the union of geodesic discs around pts.

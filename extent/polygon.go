@@ -483,9 +483,8 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 // whole turn) is kept: it runs along a parallel across the whole map, as
 // in a polygon around a pole written in one piece.
 func checkRingLon(r orb.Ring, shifted bool) error {
-	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
 	for i := 1; i < len(r); i++ {
-		if d := math.Abs(r[i][0] - r[i-1][0]); d > 180 && !(d == 360 && anti(r[i][0]) && anti(r[i-1][0])) {
+		if math.Abs(r[i][0]-r[i-1][0]) > 180 && !wholeTurn(r[i-1], r[i]) {
 			a, b := r[i-1][0], r[i][0]
 			if shifted {
 				a, b = wrapInto(a, -180), wrapInto(b, -180)
@@ -501,85 +500,46 @@ func checkRingLon(r orb.Ring, shifted bool) error {
 // within about 1 m of the parallel per 1000 km of its radius.
 const wholeTurnStep = 0.1
 
+// onAntimeridian reports whether longitude lon is 180 degrees east or west
+// of Greenwich, in any turn.
+func onAntimeridian(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
+
+// wholeTurn reports whether the edge a-b runs from one copy of the
+// antimeridian to the next: along a parallel across the whole map.
+func wholeTurn(a, b orb.Point) bool {
+	return math.Abs(b[0]-a[0]) == 360 && onAntimeridian(a[0]) && onAntimeridian(b[0])
+}
+
 // densifyWholeTurns checks the rings of geom (longitude/latitude in srs)
 // with checkRingLon and returns geom with every edge from -180 to 180 cut
 // into steps of wholeTurnStep degrees, the parallel it stands for, so that
 // it keeps its shape on a projected raster instead of joining two copies
-// of one point; nil when geom has no such edge.
+// of one point, and without the corners between seam edges (seamEdge):
+// projected, those edges are a slit to the pole, not a boundary. nil when
+// geom has no such edge.
 func densifyWholeTurns(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
-	b, err := geom.WKB()
-	if err != nil {
-		return nil, err
-	}
-	og, err := wkb.Unmarshal(b)
-	if err != nil {
-		return nil, fmt.Errorf("geometry: %w", err)
-	}
-	anti := func(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
-	found := false
-	var bad error
-	ring := func(r orb.Ring) orb.Ring {
-		if err := checkRingLon(r, false); err != nil && bad == nil {
-			bad = err
+	return mapRings(geom, srs, func(r orb.Ring) (orb.Ring, bool, error) {
+		if err := checkRingLon(r, false); err != nil {
+			return nil, false, err
 		}
 		var out orb.Ring
+		found := false
 		for i, pt := range r {
-			if i > 0 {
-				a := r[i-1]
-				if math.Abs(pt[0]-a[0]) == 360 && anti(pt[0]) && anti(a[0]) {
-					found = true
-					n := int(360 / wholeTurnStep)
-					for k := 1; k < n; k++ {
-						f := float64(k) / float64(n)
-						out = append(out, orb.Point{a[0] + f*(pt[0]-a[0]), a[1] + f*(pt[1]-a[1])})
-					}
+			if i > 0 && wholeTurn(r[i-1], pt) {
+				found = true
+				a, n := r[i-1], int(360/wholeTurnStep)
+				for k := 1; k < n; k++ {
+					f := float64(k) / float64(n)
+					out = append(out, orb.Point{a[0] + f*(pt[0]-a[0]), a[1] + f*(pt[1]-a[1])})
 				}
 			}
 			out = append(out, pt)
 		}
 		if !found {
-			return out
+			return r, false, nil
 		}
-		// A corner between two seam edges (along the antimeridian or a
-		// pole line) is where the ring was cut to fit the longitude range:
-		// projected, those edges are a slit to the pole, not a boundary.
-		return dropSeamCorners(out)
-	}
-	poly := func(p orb.Polygon) orb.Polygon {
-		q := make(orb.Polygon, len(p))
-		for j, r := range p {
-			q[j] = ring(r)
-		}
-		return q
-	}
-	var ng orb.Geometry
-	switch v := og.(type) {
-	case orb.Polygon:
-		ng = poly(v)
-	case orb.MultiPolygon:
-		m := make(orb.MultiPolygon, len(v))
-		for i, p := range v {
-			m[i] = poly(p)
-		}
-		ng = m
-	default:
-		return nil, nil
-	}
-	if bad != nil {
-		return nil, bad
-	}
-	if !found {
-		return nil, nil
-	}
-	nb, err := wkb.Marshal(ng)
-	if err != nil {
-		return nil, fmt.Errorf("geometry: %w", err)
-	}
-	d, err := godal.NewGeometryFromWKB(nb, srs)
-	if err != nil {
-		return nil, fmt.Errorf("geometry: %s", gdalmsg.Cause(err.Error()))
-	}
-	return d, nil
+		return dropSeamCorners(out), true, nil
+	})
 }
 
 // dropSeamCorners returns the closed ring r without the corners whose two
@@ -612,22 +572,13 @@ func dropSeamCorners(r orb.Ring) orb.Ring {
 // (the pole nearer its mean latitude), as a polygon round a pole written
 // in one piece. nil when no vertex moved.
 func unwrapRings(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
-	b, err := geom.WKB()
-	if err != nil {
-		return nil, err
-	}
-	og, err := wkb.Unmarshal(b)
-	if err != nil {
-		return nil, fmt.Errorf("geometry: %w", err)
-	}
-	moved := false
-	ring := func(r orb.Ring) orb.Ring {
+	return mapRings(geom, srs, func(r orb.Ring) (orb.Ring, bool, error) {
 		if len(r) < 2 {
-			return r
+			return r, false, nil
 		}
 		out := make(orb.Ring, len(r))
 		out[0] = r[0]
-		meanLat := 0.0
+		moved, meanLat := false, 0.0
 		for i := 1; i < len(r); i++ {
 			lon := r[i][0]
 			for lon-out[i-1][0] > 180 {
@@ -636,9 +587,7 @@ func unwrapRings(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, 
 			for lon-out[i-1][0] < -180 {
 				lon += 360
 			}
-			if lon != r[i][0] {
-				moved = true
-			}
+			moved = moved || lon != r[i][0]
 			out[i] = orb.Point{lon, r[i][1]}
 			meanLat += r[i][1]
 		}
@@ -649,40 +598,63 @@ func unwrapRings(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, 
 			}
 			out = append(out[:len(out)-1:len(out)-1], last, orb.Point{last[0], pole}, orb.Point{out[0][0], pole}, out[0])
 		}
-		return out
+		return out, moved, nil
+	})
+}
+
+// mapRings returns geom (in srs) with each ring of its polygons replaced
+// by what edit makes of it, or nil when edit changed none (or geom holds
+// no polygon); the first error of edit stops it.
+func mapRings(geom *godal.Geometry, srs *godal.SpatialRef, edit func(orb.Ring) (orb.Ring, bool, error)) (*godal.Geometry, error) {
+	b, err := geom.WKB()
+	if err != nil {
+		return nil, err
 	}
-	poly := func(p orb.Polygon) orb.Polygon {
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return nil, fmt.Errorf("geometry: %w", err)
+	}
+	changed := false
+	poly := func(p orb.Polygon) (orb.Polygon, error) {
 		q := make(orb.Polygon, len(p))
 		for j, r := range p {
-			q[j] = ring(r)
+			e, ch, err := edit(r)
+			if err != nil {
+				return nil, err
+			}
+			q[j], changed = e, changed || ch
 		}
-		return q
+		return q, nil
 	}
 	var ng orb.Geometry
 	switch v := og.(type) {
 	case orb.Polygon:
-		ng = poly(v)
+		if ng, err = poly(v); err != nil {
+			return nil, err
+		}
 	case orb.MultiPolygon:
 		m := make(orb.MultiPolygon, len(v))
 		for i, p := range v {
-			m[i] = poly(p)
+			if m[i], err = poly(p); err != nil {
+				return nil, err
+			}
 		}
 		ng = m
 	default:
 		return nil, nil
 	}
-	if !moved {
+	if !changed {
 		return nil, nil
 	}
 	nb, err := wkb.Marshal(ng)
 	if err != nil {
 		return nil, fmt.Errorf("geometry: %w", err)
 	}
-	u, err := godal.NewGeometryFromWKB(nb, srs)
+	out, err := godal.NewGeometryFromWKB(nb, srs)
 	if err != nil {
 		return nil, fmt.Errorf("geometry: %s", gdalmsg.Cause(err.Error()))
 	}
-	return u, nil
+	return out, nil
 }
 
 // lonRange returns the smallest and largest longitude of r.
