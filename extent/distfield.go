@@ -404,6 +404,14 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 					room, k = fl.gap(s, s)
 				}
 				d = uint16(k)
+				// The query's room reaches back too: the cells of the row
+				// to its left (same class, classified before) get the
+				// larger room, which the next row takes from above.
+				if hs >= 0 {
+					for j, g := c-1, room-hs; j >= c0 && g > rooms[j] && row[j] == d; j, g = j-1, g-hs {
+						rooms[j] = g
+					}
+				}
 			}
 			row[c] = d
 			rooms[c] = room
