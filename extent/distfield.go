@@ -75,10 +75,10 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 			}
 			fl := &field{cuts: cuts, maxD: maxD, w: g.Width, cls: make([]uint16, tileSide*g.Width), room: make([]float64, tileSide*g.Width)}
 			open := make([]int32, len(cuts))
-			rhos := map[[3]int]float64{}
+			rhos := &tileRadii{}
 			pts := &bandPoints{lons: lons, lats: lats, rows: make([]geodesy.Parallel, tileSide), hint: -1, reach: reach}
 			for r0 := range bands {
-				clear(rhos)
+				rhos.n = 0
 				clear(fl.room)
 				fl.band = r0
 				r1 := min(r0+tileSide, g.Height)
@@ -226,7 +226,7 @@ func classGap(cuts []float64, lo, hi float64) (gap float64, cls int) {
 // of the field's band. When it did not, hi bounds the centre
 // cell's distance from above and rho the distance from the centre cell to
 // any cell of the tile (hi is +Inf when either is unknown).
-func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos map[[3]int]float64) (settled bool, hi, rho float64) {
+func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos *tileRadii) (settled bool, hi, rho float64) {
 	g := b.g
 	band, maxD := fl.band, fl.maxD
 	lons, lats := pts.lons, pts.lats
@@ -239,7 +239,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 	// same radius (to rounding far inside the margin below): it is
 	// computed once per band and shape.
 	key := [3]int{r0 - band, r1 - band, c1 - c0}
-	rho, known := rhos[key]
+	rho, known := rhos.get(key)
 	if !known {
 		for _, k := range []int{r0 - band, r1 - 1 - band} {
 			for _, c := range []int{c0, c1 - 1} {
@@ -256,7 +256,7 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 		// factor covers that and the curvature of the tile's edges.
 		rho = rho*1.02 + 1
 		if g.Geographic {
-			rhos[key] = rho
+			rhos.put(key, rho)
 		}
 	}
 	// Bounds from the chord stage settle most tiles without a geodesic;
@@ -295,6 +295,34 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 	}
 	fl.fill(r0, r1, c0, c1, cls, cellRoom)
 	return true, hi, rho
+}
+
+// tileRadii holds the radius of each tile shape of a band (wholeTile):
+// the few shapes a band has (tiles of tileSide and their quarters, and
+// the narrower ones at the grid's east edge) in a short list, looked up
+// in order.
+type tileRadii struct {
+	keys [16][3]int
+	rho  [16]float64
+	n    int
+}
+
+func (t *tileRadii) get(key [3]int) (float64, bool) {
+	for i := 0; i < t.n; i++ {
+		if t.keys[i] == key {
+			return t.rho[i], true
+		}
+	}
+	return 0, false
+}
+
+// put records a radius; beyond the list's room it is not kept (and is
+// measured again when asked).
+func (t *tileRadii) put(key [3]int, rho float64) {
+	if t.n < len(t.keys) {
+		t.keys[t.n], t.rho[t.n] = key, rho
+		t.n++
+	}
 }
 
 // sphereDistance is the great-circle distance in metres between two points
@@ -404,6 +432,14 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 					room, k = fl.gap(s, s)
 				}
 				d = uint16(k)
+				// The query's room reaches back too: the cells of the row
+				// to its left (same class, classified before) get the
+				// larger room, which the next row takes from above.
+				if hs >= 0 {
+					for j, g := c-1, room-hs; j >= c0 && g > rooms[j] && row[j] == d; j, g = j-1, g-hs {
+						rooms[j] = g
+					}
+				}
 			}
 			row[c] = d
 			rooms[c] = room

@@ -48,6 +48,16 @@ func (b *builder) finish(trainCells, testCells []int) {
 			total = b.validArea()
 		}()
 	}
+	// Each row's one cell area (rows of equal cells), measured once for
+	// all the members.
+	var rowSame []float64
+	var rowOK []bool
+	if measure {
+		rowSame, rowOK = make([]float64, g.Height), make([]bool, g.Height)
+		for row := range rowSame {
+			rowSame[row], rowOK[row] = g.rowArea(row)
+		}
+	}
 	var next atomic.Int64
 	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
 		wg.Add(1)
@@ -73,7 +83,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 					// order; in rows of equal cells repeatAdd gives that
 					// sum without doing each addition.
 					a := area[k]
-					if same, ok := g.rowArea(row); ok {
+					if same := rowSame[row]; rowOK[row] {
 						for i := 0; i < len(r); i += 2 {
 							a = repeatAdd(a, same, int(r[i+1]-r[i]))
 						}

@@ -57,14 +57,17 @@ func WriteLayer(path, name string, srs *godal.SpatialRef, gtype godal.GeometryTy
 	return nil
 }
 
-// writeFeature adds one feature to layer.
+// writeFeature adds one feature to layer: its fields and geometry are set
+// on a feature that is not yet in the layer, then inserted once
+// (CreateFeature). Inserting the geometry first and updating the fields
+// afterwards wrote every geometry twice, with its spatial index entry.
 func writeFeature(layer godal.Layer, srs *godal.SpatialRef, fields []LayerField, f Feature) error {
 	geom, err := godal.NewGeometryFromWKB(f.WKB, srs)
 	if err != nil {
 		return err
 	}
-	ft, err := layer.NewFeature(geom)
-	geom.Close()
+	defer geom.Close()
+	ft, err := layer.NewFeature(nil) // no geometry: not inserted
 	if err != nil {
 		return err
 	}
@@ -75,5 +78,8 @@ func writeFeature(layer godal.Layer, srs *godal.SpatialRef, fields []LayerField,
 			return fmt.Errorf("field %s: %w", fd.Name, err)
 		}
 	}
-	return layer.UpdateFeature(ft)
+	if err := ft.SetGeometry(geom); err != nil {
+		return err
+	}
+	return layer.CreateFeature(ft)
 }

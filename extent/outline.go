@@ -71,7 +71,15 @@ func (vi *vertexIndex) leaving(x, y int32) [2]int32 {
 		return o
 	}
 	line := vi.order[vi.start[y]:vi.start[y+1]]
-	i := sort.Search(len(line), func(i int) bool { return vi.edges[line[i]].x0 >= x })
+	// The first edge starting at or east of x (sort.Search, inlined).
+	i, j := 0, len(line)
+	for i < j {
+		if m := int(uint(i+j) >> 1); vi.edges[line[m]].x0 < x {
+			i = m + 1
+		} else {
+			j = m
+		}
+	}
 	for n := 0; n < 2 && i < len(line) && vi.edges[line[i]].x0 == x; i, n = i+1, n+1 {
 		o[n] = line[i]
 	}
@@ -123,8 +131,10 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 			}
 		}
 	}
-	// Edges, and the edges leaving each vertex.
-	var edges []gridEdge
+	// Edges, and the edges leaving each vertex. Each run gives two
+	// vertical edges; horizontal ones are about as many on smooth
+	// members (the slice grows beyond when not).
+	edges := make([]gridEdge, 0, 4*nRuns)
 	var scratch rowRuns
 	for r := 0; r <= len(rows); r++ {
 		var above, below rowRuns
@@ -180,25 +190,33 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 		ri := sort.Search(len(rr)/2, func(i int) bool { return rr[2*i+1] > cx })
 		return find(int32(first[cy] + ri))
 	}
+	// The corners of the ring being traced are gathered in buf (reused),
+	// with whether the ring reached each by a vertex with two ways on
+	// (at), then copied.
+	var buf [][2]int32
+	var at []bool
 	for start := range edges {
 		if used[start] {
 			continue
 		}
 		// Corners of the ring, its first corner repeated at the end.
-		var pts [][2]int32
+		pts, twoWays := buf[:0], at[:0]
 		cur := start
 		dx, dy := int32(0), int32(0)
 		pinched := false // the ring passes a vertex with two ways on
+		arrived := false // the current edge starts at such a vertex
 		for {
 			used[cur] = true
 			e := edges[cur]
 			ndx, ndy := sign(e.x1-e.x0), sign(e.y1-e.y0)
 			if ndx != dx || ndy != dy {
 				pts = append(pts, [2]int32{e.x0, e.y0})
+				twoWays = append(twoWays, arrived)
 			}
 			dx, dy = ndx, ndy
 			o := out.leaving(e.x1, e.y1)
 			next := o[0]
+			arrived = o[1] >= 0
 			if o[1] >= 0 {
 				pinched = true
 				// Two ways on: turn left, i.e. towards (dy, -dx).
@@ -214,19 +232,22 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 		}
 		// The start is no corner when the last edge runs straight into it.
 		if f0 := edges[start]; len(pts) > 1 && sign(f0.x1-f0.x0) == dx && sign(f0.y1-f0.y0) == dy {
-			pts = pts[1:]
+			pts, twoWays = pts[1:], twoWays[1:]
 		}
 		pts = append(pts, pts[0])
+		twoWays = append(twoWays, true)
+		twoWays[0] = true
+		buf, at = pts[:0], twoWays[:0]
 		// A ring that passes a vertex twice (cells touching only at a
 		// corner) is split there into simple rings, as valid polygons
 		// need: an outer ring and a hole touching it at that point. Only
 		// a vertex with two ways on can be passed twice; a ring without
 		// one is already simple (splitLoops would return it whole).
-		loops := [][][2]int32{pts}
+		var loops [][][2]int32
 		if pinched {
-			loops = splitLoops(pts)
-		} else if len(pts) <= 3 {
-			loops = nil
+			loops = splitLoops(pts, twoWays)
+		} else if len(pts) > 3 {
+			loops = [][][2]int32{slices.Clone(pts)}
 		}
 		for _, loop := range loops {
 			var area int64
@@ -292,26 +313,36 @@ func (f *Family) Outline(k int) (orb.MultiPolygon, error) {
 }
 
 // splitLoops splits a closed vertex list (first vertex repeated last) at
-// every vertex it passes twice, returning closed simple loops.
-func splitLoops(pts [][2]int32) [][][2]int32 {
+// every vertex it passes twice, returning closed simple loops. may[i]
+// tells whether pts[i] may be passed twice: only those vertices are
+// looked up (a ring passes twice only its first vertex and vertices with
+// two ways on), the others are kept in order.
+func splitLoops(pts [][2]int32, may []bool) [][][2]int32 {
 	var loops [][][2]int32
-	var stack [][2]int32
+	stack := make([][2]int32, 0, len(pts))
+	stackMay := make([]bool, 0, len(pts))
 	at := map[[2]int32]int{}
-	for _, p := range pts {
+	for n, p := range pts {
+		if !may[n] {
+			stack, stackMay = append(stack, p), append(stackMay, false)
+			continue
+		}
 		if i, ok := at[p]; ok {
 			loop := append([][2]int32{}, stack[i:]...)
 			loop = append(loop, p)
 			if len(loop) > 3 {
 				loops = append(loops, loop)
 			}
-			for _, q := range stack[i+1:] {
-				delete(at, q)
+			for j, q := range stack[i+1:] {
+				if stackMay[i+1+j] {
+					delete(at, q)
+				}
 			}
-			stack = stack[:i+1]
+			stack, stackMay = stack[:i+1], stackMay[:i+1]
 			continue
 		}
 		at[p] = len(stack)
-		stack = append(stack, p)
+		stack, stackMay = append(stack, p), append(stackMay, true)
 	}
 	return loops
 }
