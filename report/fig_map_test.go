@@ -2,10 +2,15 @@ package report
 
 import (
 	"fmt"
+	"math"
+	"math/rand/v2"
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
+
+	"areasweep/extent/vocab"
 )
 
 // TestMapPanelsFit checks the map figure's arrangement for families from
@@ -51,6 +56,69 @@ func TestMapPanelsFit(t *testing.T) {
 				if !strings.HasPrefix(got, groups[l.shown].title) || !strings.HasSuffix(got, groups[n-1].title) {
 					t.Errorf("left-out panels named %q", got)
 				}
+			}
+		})
+	}
+}
+
+// TestMapMarksMerged: a point layer of more than crowdedMarks points is
+// drawn with at most one mark per cell of the markLattice lattice across
+// the map: every mark is one of the layer's points, no two share a cell,
+// every point shares a cell with a mark, and the key and the caption say
+// so; a layer of crowdedMarks points or fewer is drawn point by point,
+// with the key and caption as before.
+func TestMapMarksMerged(t *testing.T) {
+	for _, n := range []int{crowdedMarks / 2, crowdedMarks, 3 * crowdedMarks} {
+		t.Run(fmt.Sprint(n), func(t *testing.T) {
+			r := loadSample(t)
+			rng := rand.New(rand.NewPCG(uint64(n), 7))
+			r.Points = r.Points[:0]
+			for i := range n {
+				r.Points = append(r.Points, Point{ID: i + 2, Role: vocab.RoleTrain, Status: vocab.PointScored,
+					Row: rng.IntN(r.Grid.Height), Col: rng.IntN(r.Grid.Width)})
+			}
+			model := r.Models[0].Name
+			tr := mapPoints(r, model).layers[0]
+			f, ok := mapFigure(r)
+			if !ok {
+				t.Fatal("no map figure")
+			}
+			merged := strings.Contains(f.Caption, "one mark where several fall")
+			if n <= crowdedMarks {
+				if len(tr.xys) != n || tr.label != "training point" || merged {
+					t.Fatalf("%d points: %d marks, key %q, caption merged %v", n, len(tr.xys), tr.label, merged)
+				}
+				return
+			}
+			pv := r.Preview
+			dx := (pv.Bounds[2] - pv.Bounds[0]) / markLattice
+			dy := dx
+			if r.Grid.Geographic {
+				dy *= math.Cos((pv.Bounds[1] + pv.Bounds[3]) / 2 * math.Pi / 180)
+			}
+			cell := func(x, y float64) [2]int64 { return [2]int64{int64(math.Floor(x / dx)), int64(math.Floor(y / dy))} }
+			points := map[plotter.XY]bool{}
+			for _, p := range r.Points {
+				x, y := pointXY(r.Grid, p)
+				points[plotter.XY{X: x, Y: y}] = true
+			}
+			marks := map[[2]int64]bool{}
+			for _, m := range tr.xys {
+				if !points[m] {
+					t.Fatalf("mark %v is none of the points", m)
+				}
+				if marks[cell(m.X, m.Y)] {
+					t.Fatalf("two marks in the cell of %v", m)
+				}
+				marks[cell(m.X, m.Y)] = true
+			}
+			for p := range points {
+				if !marks[cell(p.X, p.Y)] {
+					t.Fatalf("point %v has no mark in its cell", p)
+				}
+			}
+			if len(tr.xys) >= n || tr.label != fmt.Sprintf("training point (%d points, %d marks)", n, len(tr.xys)) || !merged {
+				t.Fatalf("%d points: %d marks, key %q, caption merged %v", n, len(tr.xys), tr.label, merged)
 			}
 		})
 	}
