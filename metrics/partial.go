@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math"
-	"math/bits"
 	"math/rand/v2"
 )
 
@@ -345,24 +344,4 @@ func (p *presences) curve() []Point {
 	}
 	add(1, 1)
 	return pts
-}
-
-// intN returns rand.New(src).IntN(n) for n > 0, the same number from the
-// same draws of src (math/rand/v2's uint64n: Lemire's multiply-shift with
-// rejection, which its 32-bit path reproduces exactly), without the
-// interface call per draw: the published bootstrap draws f n positions per
-// resample, 45 million in a run of 3 models x 60 extents.
-func intN(src *rand.PCG, n int) int {
-	u := uint64(n)
-	if u&(u-1) == 0 { // a power of two: mask
-		return int(src.Uint64() & (u - 1))
-	}
-	hi, lo := bits.Mul64(src.Uint64(), u)
-	if lo < u {
-		thresh := -u % u
-		for lo < thresh {
-			hi, lo = bits.Mul64(src.Uint64(), u)
-		}
-	}
-	return int(hi)
 }

@@ -3,6 +3,7 @@ package metrics
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -123,6 +124,27 @@ func TestIntNSameAsRand(t *testing.T) {
 				if got, want := intN(a, n), r.IntN(n); got != want {
 					t.Fatalf("n=%d seed=%d draw %d: intN %d, IntN %d", n, seed, i, got, want)
 				}
+			}
+		}
+	}
+}
+
+// TestDrawsFillSameAsRand: a paired resample's counts (Draws.fill, drawn
+// with intN) are those of drawing rand.Rand.IntN from the same PCG, so the
+// resamples, and every paired interval, are those of before.
+func TestDrawsFillSameAsRand(t *testing.T) {
+	for _, n := range []int{1, 2, 5, 64, 499, 4096, 50000} {
+		d := Draws{N: n, B: 3, Seed: 11}
+		got, want := make([]int32, n), make([]int32, n)
+		for b := range d.B {
+			d.fill(b, got)
+			clear(want)
+			r := rand.New(rand.NewPCG(d.Seed, uint64(b)))
+			for range n {
+				want[r.IntN(n)]++
+			}
+			if !slices.Equal(got, want) {
+				t.Fatalf("N=%d resample %d: counts differ", n, b)
 			}
 		}
 	}

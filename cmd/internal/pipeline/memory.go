@@ -47,7 +47,7 @@ const blockCache = 64 << 20
 //	              on every resample (metrics: 8 (E values + thresholds + 1)
 //	              + E values + 9 bytes per resample), and the table of the
 //	              resamples' counts (metrics.DrawTableBytes: 1 byte per
-//	              resample and test point, at most 32 MiB), added by
+//	              resample and test point, at most 128 MiB), added by
 //	              resampleMemo
 //
 // layoutValues is the number of presence values plus fixed thresholds.

@@ -21,8 +21,9 @@ func TestResampleMemoCountsDrawTable(t *testing.T) {
 		table  int64
 	}{
 		{500, 500 * 1000},                          // the 27 million-cell study's 500 test points: 0.5 MB
-		{100_000, metrics.MaxDrawTableBytes},       // 100 MB for all: fewer test points may still fit the cap
-		{33_554, int64(33_554) * 1000},             // just under the cap
+		{100_000, 100_000 * 1000},                  // 100 MB: within the cap of 128 MiB
+		{134_217, int64(134_217) * 1000},           // just under the cap
+		{134_218, metrics.MaxDrawTableBytes},       // just over: drawn again, so only the cap is counted
 		{1_000_000_000, metrics.MaxDrawTableBytes}, // never more than the cap
 	} {
 		if got := o.resampleMemo(20, c.points) - memo; got != c.table {
