@@ -149,15 +149,15 @@ type virtualSource struct {
 	bf     BoundedField
 	bins   Binner
 	lo, hi []float64
-	shown  []float64     // shownValues' (made on first use)
-	last   []float64     // the last block's values (ReadBlock's buf)
-	moved  []movedCell   // the cells of the last block computed exactly
-	minHi  []float64     // per member: smallest upper bound in the block
-	maxLo  []float64     // per member: largest lower bound in the block
-	segLo  []float64     // per segment of the block: smallest lower bound
-	segHi  []float64     // per segment of the block: largest upper bound
-	sigMn  []float64     // per signature: the largest of its members' minHi
-	sigMx  []float64     // per signature: the smallest of its members' maxLo
+	shown  []float64   // shownValues' (made on first use)
+	last   []float64   // the last block's values (ReadBlock's buf)
+	moved  []movedCell // the cells of the last block computed exactly
+	minHi  []float64   // per member: smallest upper bound in the block
+	maxLo  []float64   // per member: largest lower bound in the block
+	segLo  []float64   // per segment of the block: smallest lower bound
+	segHi  []float64   // per segment of the block: largest upper bound
+	sigMn  []float64   // per signature: the largest of its members' minHi
+	sigMx  []float64   // per signature: the smallest of its members' maxLo
 	one    [1]float64
 	tally  *rowTally // Virtual.Tally's, on the bounded path
 }
