@@ -2,7 +2,7 @@
 # The project's tests: installs what they need if missing, regenerates the
 # golden values from the reference libraries (scikit-learn, SciPy, R's pROC,
 # PROJ's geod) and fails if they differ from the committed ones, then runs
-# go vet and every Go test, the end-to-end and browser tests included.
+# gofmt, go vet and every Go test, the end-to-end and browser tests included.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 [ -x /usr/local/go/bin/go ] && export PATH="/usr/local/go/bin:$PATH"
@@ -19,6 +19,13 @@ if ! git diff --exit-code --stat -- testdata cmd/*/testdata cmd/internal/*/testd
   exit 1
 fi
 
+echo "== gofmt"
+unformatted=$(gofmt -l .)
+if [ -n "$unformatted" ]; then
+  echo "not gofmt-formatted (run gofmt -w on them):" >&2
+  echo "$unformatted" >&2
+  exit 1
+fi
 echo "== go vet"
 go vet ./...
 echo "== go test"
