@@ -528,6 +528,17 @@ func (b *bracketer) super(sr, scol int) {
 			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
 		}
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
+		if len(b.cands) > maxCandidates {
+			// Too many sites to measure at the anchors (dense training
+			// points): the chords, which take any number, bracket what
+			// they can and the cells they leave are computed exactly.
+			if !b.chords(y1, y2, x1, x2, clat, clon, rho) {
+				for _, p := range b.left {
+					b.exactCell(p.i)
+				}
+				return
+			}
+		}
 	}
 	if !ok {
 		b.exactRange(r0, c0, SuperTile, SuperTile)
@@ -926,18 +937,22 @@ func (b *bracketer) anchorBracket(st *stencil, j int) (lo, hi float64) {
 func (b *bracketer) exactRange(r0, c0, h, w int) {
 	for r := r0; r < r0+h; r++ {
 		for c := c0; c < c0+w; c++ {
-			i, ok := b.needed(c, r)
-			if !ok {
-				continue
+			if i, ok := b.needed(c, r); ok {
+				b.exactCell(i)
 			}
-			lat, lon := b.ll.lat(r), b.ll.lon(c)
-			if !(math.Abs(lat) <= 90) {
-				continue
-			}
-			_, d := b.f.ix.Nearest(lat, lon, 0)
-			b.lo[i], b.hi[i] = d, d
 		}
 	}
+}
+
+// exactCell computes block cell i exactly with a nearest-site query, as
+// Distances does; a cell beyond the poles is left as it is.
+func (b *bracketer) exactCell(i int) {
+	lat, lon := b.ll.lat(b.y0+i/b.w), b.ll.lon(b.x0+i%b.w)
+	if !(math.Abs(lat) <= 90) {
+		return
+	}
+	_, d := b.f.ix.Nearest(lat, lon, 0)
+	b.lo[i], b.hi[i] = d, d
 }
 
 // hLoFast and hHiFast bound the Hessian comparison bounds at distance r

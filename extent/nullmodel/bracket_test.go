@@ -68,6 +68,9 @@ func TestBracketContainsDistance(t *testing.T) {
 		{"arctic-coarse", -60, 89.5, 0.5, 240, 60, -60, 70, 60, 89, 12},
 		{"antimeridian", 175, -30, 0.05, 200, 120, 176, -36, 184, -31, 25},
 		{"south-pole", -180, -80, 0.1, 180, 100, -180, -89, -100, -81, 8},
+		// Dense training points: many super-tiles have more candidates
+		// than the anchors measure (maxCandidates).
+		{"dense-1km", -5, 55, 0.01, 300, 200, -4.6, 53.3, -2.4, 54.9, 4000},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
