@@ -45,11 +45,21 @@ func WriteLayer(path, name string, srs *godal.SpatialRef, gtype godal.GeometryTy
 		ds.Close()
 		return fmt.Errorf("extent: create layer %s in %s: %w", name, path, err)
 	}
+	// One transaction for all features: SQLite otherwise commits, and
+	// syncs the file, after each one (50,000 points took 5 s).
+	if err := ds.StartTransaction(); err != nil {
+		ds.Close()
+		return fmt.Errorf("extent: write %s: %w", path, err)
+	}
 	for n, f := range feats {
 		if err := writeFeature(layer, srs, fields, f); err != nil {
 			ds.Close()
 			return fmt.Errorf("extent: write feature %d of %s to %s: %w", n+1, name, path, err)
 		}
+	}
+	if err := ds.CommitTransaction(); err != nil {
+		ds.Close()
+		return fmt.Errorf("extent: write %s: %w", path, err)
 	}
 	if err := ds.Close(); err != nil {
 		return fmt.Errorf("extent: close %s: %w", path, err)
