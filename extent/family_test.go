@@ -738,6 +738,50 @@ func TestProjectedRegionAcrossAntimeridian(t *testing.T) {
 	}
 }
 
+// TestRegionWestOfGridAcrossAntimeridian: on a grid running 170..190, a
+// region of two polygons, one partly on the grid west of 180 (165..176)
+// and one wholly west of the grid (160..169.5, but within its buffers'
+// reach), gives the cells that a grid running 150..190, which holds both,
+// gives its same cells: the polygons stay where they are instead of being
+// moved a turn east, where the first lost its cells and the second made
+// the run fail with a longitude of 520.
+func TestRegionWestOfGridAcrossAntimeridian(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"a", "b"}, [][][2]float64{
+		{{160, -25}, {169.5, -25}, {169.5, -15}, {160, -15}, {160, -25}},
+		{{165, -28}, {176, -28}, {176, -22}, {165, -22}, {165, -28}},
+	})
+	spec := Spec{Region: region, RegionBuffersKm: []float64{-20, 100, 300}}
+	narrow, nv := geoGrid(t, 170, -10, 0.1, 200, 200)
+	wide, wv := geoGrid(t, 150, -10, 0.1, 400, 200)
+	fn, err := Build(narrow, nv, spec, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fw, err := Build(wide, wv, spec, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, id := range []string{"base", "region_minus20km", "region_100km", "region_300km"} {
+		kn, kw := memberIdx(t, fn, id), memberIdx(t, fw, id)
+		n := 0
+		for row := range 200 {
+			for col := range 200 {
+				got, want := fn.Has(kn, row*200+col), fw.Has(kw, row*400+col+200)
+				if got != want {
+					t.Fatalf("%s at row %d lon %.2f: %v, want %v (the wide grid's)", id, row, 170.05+0.1*float64(col), got, want)
+				}
+				if got {
+					n++
+				}
+			}
+		}
+		if n == 0 {
+			t.Fatalf("%s: no cell on the narrow grid", id)
+		}
+	}
+}
+
 // TestClipEqualsBuildOnValid: building on every cell and clipping to the
 // valid cells afterwards gives the family built on the valid cells at once.
 func TestClipEqualsBuildOnValid(t *testing.T) {

@@ -421,8 +421,9 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 			// meridian, such as a polygon round a pole written from -180
 			// to 180 on a grid that starts elsewhere, or a projected one
 			// across 180 degrees (unwrapRings). A polygon that meets the
-			// grid at no turn goes where its west end falls in the grid's
-			// range, near enough to matter to the buffers.
+			// grid at no turn goes to the turn that puts its middle
+			// nearest the grid's, where it may still matter to the
+			// buffers.
 			lo, hi := lonRange(p[0])
 			placed := false
 			for k := math.Floor((west - hi) / 360); lo+360*k < east; k++ {
@@ -432,7 +433,7 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 				}
 			}
 			if !placed {
-				out = append(out, shiftedPolygon(p, wrapInto(lo, west)-lo))
+				out = append(out, shiftedPolygon(p, 360*math.Round(((west+east)-(lo+hi))/720)))
 			}
 		}
 		mp = out
