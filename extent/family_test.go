@@ -739,16 +739,16 @@ func TestProjectedRegionAcrossAntimeridian(t *testing.T) {
 }
 
 // TestRegionWestOfGridAcrossAntimeridian: on a grid running 170..190, a
-// region of two polygons, one partly on the grid west of 180 (165..176)
-// and one wholly west of the grid (160..169.5, but within its buffers'
-// reach), gives the cells that a grid running 150..190, which holds both,
+// region of two apart polygons, one partly on the grid west of 180
+// (165..176) and one wholly west of the grid (160..169.5, but within its
+// buffers' reach), gives the cells that a grid running 150..190, which holds both,
 // gives its same cells: the polygons stay where they are instead of being
 // moved a turn east, where the first lost its cells and the second made
 // the run fail with a longitude of 520.
 func TestRegionWestOfGridAcrossAntimeridian(t *testing.T) {
 	dir := t.TempDir()
 	region := writeGeoJSON(t, dir, "r.geojson", []string{"a", "b"}, [][][2]float64{
-		{{160, -25}, {169.5, -25}, {169.5, -15}, {160, -15}, {160, -25}},
+		{{160, -20}, {169.5, -20}, {169.5, -12}, {160, -12}, {160, -20}},
 		{{165, -28}, {176, -28}, {176, -22}, {165, -22}, {165, -28}},
 	})
 	spec := Spec{Region: region, RegionBuffersKm: []float64{-20, 100, 300}}
