@@ -420,9 +420,10 @@ func TestBadGeometry(t *testing.T) {
 		t.Errorf("shapefile without CRS: %v", err)
 	}
 
-	// An edge from 179 E to 179 W drawn the long way round.
-	am := writeGeoJSON(t, dir, "am.geojson", []string{"a"}, [][][2]float64{{{179, 1}, {-179, 1}, {-179, 3}, {179, 3}, {179, 1}}})
-	if _, _, err := ReadShape(am, g); err == nil || !strings.Contains(err.Error(), "antimeridian") {
+	// An edge from 179 E to 179 W drawn the long way round, in the
+	// second feature: the message names it.
+	am := writeGeoJSON(t, dir, "am.geojson", []string{"a", "b"}, [][][2]float64{{{1, 1}, {2, 1}, {2, 2}, {1, 1}}, {{179, 1}, {-179, 1}, {-179, 3}, {179, 3}, {179, 1}}})
+	if _, _, err := ReadShape(am, g); err == nil || !strings.Contains(err.Error(), "antimeridian") || !strings.Contains(err.Error(), "feature 2:") {
 		t.Errorf("antimeridian ring: %v", err)
 	}
 }

@@ -173,6 +173,12 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		if msg := coordinateProblem(own, lsr.Geographic()); msg != "" {
 			return nil, warns, fmt.Errorf("extent: %s feature %d %s; check the coordinates and the layer's CRS", path, fid, msg)
 		}
+		if lsr.Geographic() {
+			// Each feature's own edges, so that the message can name it.
+			if _, err := mapRings(own, lsr, func(r orb.Ring) (orb.Ring, bool, error) { return r, false, checkRingLon(r, false) }); err != nil {
+				return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+			}
+		}
 		if !own.Valid() {
 			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired; fix it in a GIS", path, fid)
 		}
@@ -471,10 +477,11 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 // checkRingLon refuses rings with an edge jumping more than 180 degrees of
 // longitude: such a ring crosses the antimeridian in a way the grid cannot
 // represent, and filling it would cover the wrong side of the Earth. It
-// checks the rings on a latitude-longitude grid (shapeOf) and, for a
-// projected grid, the rings of a layer in longitude/latitude before they
-// are projected (densifyWholeTurns): a ring in projected coordinates is
-// straight in them wherever its corners' longitudes lie.
+// checks each feature of a layer in longitude/latitude as it is read
+// (readUnits, whatever the grid), and the rings on a latitude-longitude
+// grid once more (shapeOf); a layer in a projected CRS is not checked on a
+// projected grid: a ring there is straight in its coordinates wherever its
+// corners' longitudes lie.
 //
 // On latitude-longitude grids the ring has been shifted by whole turns
 // into the grid's range; the message shows the longitudes in -180..180,
@@ -511,8 +518,9 @@ func wholeTurn(a, b orb.Point) bool {
 	return math.Abs(b[0]-a[0]) == 360 && onAntimeridian(a[0]) && onAntimeridian(b[0])
 }
 
-// densifyWholeTurns checks the rings of geom (longitude/latitude in srs)
-// with checkRingLon and returns geom with every edge from -180 to 180 cut
+// densifyWholeTurns returns geom (longitude/latitude in srs, whose
+// features readUnits has checked with checkRingLon) with every edge from
+// -180 to 180 cut
 // into steps of wholeTurnStep degrees, the parallel it stands for, so that
 // it keeps its shape on a projected raster instead of joining two copies
 // of one point, and without the corners between seam edges (seamEdge):
@@ -520,9 +528,6 @@ func wholeTurn(a, b orb.Point) bool {
 // geom has no such edge.
 func densifyWholeTurns(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
 	return mapRings(geom, srs, func(r orb.Ring) (orb.Ring, bool, error) {
-		if err := checkRingLon(r, false); err != nil {
-			return nil, false, err
-		}
 		var out orb.Ring
 		found := false
 		for i, pt := range r {
