@@ -556,24 +556,8 @@ func TestPolarCapOnePiece(t *testing.T) {
 	}{{onePiece, -180}, {onePiece, 0}, {halves, 0}} {
 		f := build(c.region, c.west)
 		shift := int(math.Round((c.west + 180) / 2)) // columns of the reference grid
-		for _, id := range []string{"base", "region_minus150km", "region_300km"} {
-			kr, kf := memberIdx(t, ref, id), memberIdx(t, f, id)
-			n := 0
-			for row := 0; row < 45; row++ {
-				for col := 0; col < 180; col++ {
-					want := ref.Has(kr, row*180+(col+shift)%180)
-					if got := f.Has(kf, row*180+col); got != want {
-						t.Fatalf("%s on a grid from %g: %s at row %d col %d: %v, want %v", filepath.Base(c.region), c.west, id, row, col, got, want)
-					}
-					if want {
-						n++
-					}
-				}
-			}
-			if n == 0 || n == 180*45 {
-				t.Fatalf("%s: %d cells: the comparison shows nothing", id, n)
-			}
-		}
+		sameMembers(t, fmt.Sprintf("%s on a grid from %g", filepath.Base(c.region), c.west), f, ref,
+			[]string{"base", "region_minus150km", "region_300km"}, func(i int) int { return i/180*180 + (i%180+shift)%180 })
 	}
 	// The hole is out of the base region and the cap is in it.
 	kb := memberIdx(t, ref, "base")
@@ -691,22 +675,8 @@ func TestProjectedRegionAcrossAntimeridian(t *testing.T) {
 		{{175, -30}, {180, -30}, {180, -10}, {175, -10}, {175, -30}},
 		{{-180, -30}, {-175, -30}, {-175, -10}, {-180, -10}, {-180, -30}},
 	})
-	fm, fs := build(merc), build(split)
-	for _, id := range []string{"base", "region_minus100km", "region_200km"} {
-		km, ks := memberIdx(t, fm, id), memberIdx(t, fs, id)
-		n := 0
-		for i := range g.Cells() {
-			if fm.Has(km, i) != fs.Has(ks, i) {
-				t.Fatalf("%s: cell %d (row %d col %d): %v from EPSG:3832, %v from the split rectangle", id, i, i/720, i%720, fm.Has(km, i), fs.Has(ks, i))
-			}
-			if fs.Has(ks, i) {
-				n++
-			}
-		}
-		if n == 0 {
-			t.Fatalf("%s: no cell", id)
-		}
-	}
+	sameMembers(t, "EPSG:3832 against the split rectangle", build(merc), build(split),
+		[]string{"base", "region_minus100km", "region_200km"}, func(i int) int { return i })
 	var circle [][2]float64
 	for k := 0; k <= 720; k++ {
 		circle = append(circle, [2]float64{-180 + float64(k%720)*0.5, -70})
@@ -763,22 +733,32 @@ func TestRegionWestOfGridAcrossAntimeridian(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, id := range []string{"base", "region_minus20km", "region_100km", "region_300km"} {
-		kn, kw := memberIdx(t, fn, id), memberIdx(t, fw, id)
+	sameMembers(t, "the 170..190 grid against the 150..190 one", fn, fw,
+		[]string{"base", "region_minus20km", "region_100km", "region_300km"}, func(i int) int { return i/200*400 + i%200 + 200 })
+}
+
+// sameMembers checks that each member ids of got has, on every cell i of
+// got's grid, the membership that the same member of want has on cell
+// at(i) of want's grid (the same place on another grid or from another
+// region file), and that the comparison shows something: the member
+// holds some of got's cells and not all. label names the case.
+func sameMembers(t *testing.T, label string, got, want *Family, ids []string, at func(i int) int) {
+	t.Helper()
+	cells := got.Grid.Cells()
+	for _, id := range ids {
+		kg, kw := memberIdx(t, got, id), memberIdx(t, want, id)
 		n := 0
-		for row := range 200 {
-			for col := range 200 {
-				got, want := fn.Has(kn, row*200+col), fw.Has(kw, row*400+col+200)
-				if got != want {
-					t.Fatalf("%s at row %d lon %.2f: %v, want %v (the wide grid's)", id, row, 170.05+0.1*float64(col), got, want)
-				}
-				if got {
-					n++
-				}
+		for i := range cells {
+			g, w := got.Has(kg, i), want.Has(kw, at(i))
+			if g != w {
+				t.Fatalf("%s: %s at row %d col %d: %v, want %v", label, id, i/got.Grid.Width, i%got.Grid.Width, g, w)
+			}
+			if g {
+				n++
 			}
 		}
-		if n == 0 {
-			t.Fatalf("%s: no cell on the narrow grid", id)
+		if n == 0 || n == cells {
+			t.Fatalf("%s: %s holds %d of %d cells: the comparison shows nothing", label, id, n, cells)
 		}
 	}
 }
