@@ -191,10 +191,7 @@ func mapPoints(r *Results, model string) mapMarks {
 		{"test point omitted at the minimum training presence" + none(om1), om1, draw.GlyphStyle{Color: ink, Radius: vg.Points(5.8), Shape: strokedGlyph{square: true, width: vg.Points(1.2)}}, true},
 	}
 	if pv := r.Preview; pv != nil {
-		aspect := 1.0
-		if r.Grid.Geographic {
-			aspect = math.Cos((pv.Bounds[1] + pv.Bounds[3]) / 2 * math.Pi / 180)
-		}
+		aspect := mapAspect(r)
 		for i := range lay {
 			if n := len(lay[i].xys); n > crowdedMarks {
 				lay[i].xys = mergeMarks(lay[i].xys, (pv.Bounds[2]-pv.Bounds[0])/markLattice, aspect)
@@ -277,12 +274,19 @@ func newMapScene(r *Results, marks mapMarks) (*mapScene, error) {
 		img.Set(i%pv.Width, i/pv.Width, ramp[v])
 		pal.SetColorIndex(i%pv.Width, i/pv.Width, v)
 	}
-	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: 1, marks: marks}
+	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
-	if r.Grid.Geographic {
-		m.aspect = math.Cos((m.north + m.south) / 2 * math.Pi / 180)
-	}
 	return m, nil
+}
+
+// mapAspect returns the maps' aspect, km per x unit over km per y unit:
+// on a latitude-longitude grid the cosine of the preview's middle
+// latitude (true along that parallel), else 1. r.Preview must be set.
+func mapAspect(r *Results) float64 {
+	if !r.Grid.Geographic {
+		return 1
+	}
+	return math.Cos((r.Preview.Bounds[1] + r.Preview.Bounds[3]) / 2 * math.Pi / 180)
 }
 
 // outlines returns the outline of every extent of group g, in the grid CRS.
@@ -454,10 +458,7 @@ func mapFigure(r *Results) (figure, bool) {
 		f.W = oneColumn
 	}
 	west, south, east, north := pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
-	aspect := 1.0
-	if r.Grid.Geographic {
-		aspect = math.Cos((north + south) / 2 * math.Pi / 180)
-	}
+	aspect := mapAspect(r)
 	marks := mapPoints(r, model)
 	var shared []legendItem
 	for _, l := range marks.layers {
