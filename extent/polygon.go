@@ -430,7 +430,8 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 			// grid at no turn goes to the turn that puts its middle
 			// nearest the grid's, where it may still matter to the
 			// buffers.
-			lo, hi := lonRange(p[0])
+			bb := p[0].Bound()
+			lo, hi := bb.Min[0], bb.Max[0]
 			placed := false
 			for k := math.Floor((west - hi) / 360); lo+360*k < east; k++ {
 				if hi+360*k > west {
@@ -661,15 +662,6 @@ func mapRings(geom *godal.Geometry, srs *godal.SpatialRef, edit func(orb.Ring) (
 		return nil, fmt.Errorf("geometry: %s", gdalmsg.Cause(err.Error()))
 	}
 	return out, nil
-}
-
-// lonRange returns the smallest and largest longitude of r.
-func lonRange(r orb.Ring) (lo, hi float64) {
-	lo, hi = math.Inf(1), math.Inf(-1)
-	for _, pt := range r {
-		lo, hi = math.Min(lo, pt[0]), math.Max(hi, pt[0])
-	}
-	return lo, hi
 }
 
 // shiftedPolygon returns a copy of p moved by dlon degrees of longitude.
