@@ -178,17 +178,17 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (smallest) to %s on %s (largest); the model is above the null beyond noise on %d, within noise on %d and below on %d (a description of this family of extents).",
+		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (the smallest extent) to %s on %s (the largest); the model is above the null beyond noise on %d, within noise on %d and below on %d (a description of this family of extents).",
 			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below)
 	}
 	return b.String()
@@ -238,7 +238,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 			verb = "beats"
 		}
 		part := fmt.Sprintf("%s %s %s on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
-			signed3(g.Diff), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			part += fmt.Sprintf("; the gap moves from %s on %s to %s on %s", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
@@ -262,7 +262,7 @@ func aboveNullRows(r *Results) [][]cell {
 		for _, g := range an.Gaps {
 			row := []cell{tc(an.Metric), tc(an.Model), tc(modelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
 			if g.Defined {
-				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signed3(g.Low)+" to "+signed3(g.High)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
 			} else {
 				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
@@ -302,7 +302,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signed3(g.Low), signed3(g.High), strings.ReplaceAll(g.Reading, "_", " ")),
+			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " ")),
 				num: g.Diff, isN: true, cls: "n"})
 		}
 		if has {

@@ -212,11 +212,15 @@ func chainSentence(cs *ChainSummary) string {
 // easier or harder than chance.
 func ringClause(st ChainStep) string {
 	s := fmt.Sprintf("whose AUC is %s against %s inside %s: ", f3(st.AUCRing), f3(st.AUCInner), st.Inner)
+	// Whether adding the ring raises or lowers the score follows from the
+	// ring's AUC against the inner one alone; below 0.5 says more.
 	switch {
-	case st.AUCRing < 0.5:
-		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
+	case st.AUCRing > st.AUCInner && st.AUCRing < 0.5:
+		return s + "the model still scores the ring's cells above the test points more often than not, but less often than the inner cells, so adding the ring raises the score."
 	case st.AUCRing > st.AUCInner:
 		return s + "the test points outrank the ring's cells more often than the inner cells, so adding the ring raises the score although the ranking near the records is unchanged."
+	case st.AUCRing < st.AUCInner && st.AUCRing < 0.5:
+		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
 	case st.AUCRing < st.AUCInner:
 		return s + "the ring's cells look more like the presences to the model than the inner cells do, so adding it lowers the score."
 	}

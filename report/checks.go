@@ -77,18 +77,18 @@ func lastSegment(c Curve) (TailJump, bool) {
 
 func (a *analysis) truncationSentence(t *TruncationCheck) string {
 	if !t.Flag {
-		return fmt.Sprintf("Model %s shows no sign of truncated predictions: its minimum value covers %s of the valid area, and no ROC curve ends in a tie of test points with more than %s of the area axis.",
-			t.Model, pctFine(t.FloorShare), fmtG(TailJumpFlag))
+		return fmt.Sprintf("Model %s shows no sign of truncated predictions by our cut-offs: its minimum value covers %s of the valid area (flagged from %s), and no ROC curve ends in a tie of test points with more than %s of the area axis.",
+			t.Model, pctFine(t.FloorShare), pct(FloorShareFlag), fmtG(TailJumpFlag))
 	}
-	s := fmt.Sprintf("Model %s looks truncated:", t.Model)
+	s := fmt.Sprintf("Model %s looks truncated by our cut-offs:", t.Model)
 	if t.FloorFlag {
-		s += fmt.Sprintf(" its minimum value covers %s of the valid area", pctFine(t.FloorShare))
+		s += fmt.Sprintf(" its minimum value covers %s of the valid area (flagged from %s)", pctFine(t.FloorShare), pct(FloorShareFlag))
 		if len(t.Tails) > 0 {
 			s += " and"
 		}
 	}
 	if len(t.Tails) > 0 {
-		s += fmt.Sprintf(" on %d extent(s) test points share its lowest value with up to %s of the area axis", len(t.Tails), f3(t.MaxJump))
+		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), plural(len(t.Tails)), f3(t.MaxJump), fmtG(TailJumpFlag))
 		s += ". Full AUC gives those test points half credit against the whole tied area"
 	}
 	e := "E"

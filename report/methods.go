@@ -62,8 +62,8 @@ func methodsText(r *Results) string {
 		}
 		first = false
 	}
-	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extents built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), plural(len(models)), joinList(models), len(fam), sw, joinList(fam))
+	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
+		len(models), plural(len(models)), joinList(models), len(fam), plural(len(fam)), sw, joinList(fam))
 	if len(s.SkippedExtents) > 0 {
 		var sk []string
 		for _, e := range s.SkippedExtents {
@@ -96,12 +96,22 @@ func methodsText(r *Results) string {
 	b.WriteString(".")
 	if s.TestPointsVary {
 		var fewer []string
+		all := 0
 		for i, id := range s.ScoredExtents {
-			if i < len(s.TestPoints) && s.TestPoints[i] != pc.Test {
+			if i >= len(s.TestPoints) {
+				continue
+			}
+			if s.TestPoints[i] == pc.Test {
+				all++
+			} else {
 				fewer = append(fewer, fmt.Sprintf("%s %d", id, s.TestPoints[i]))
 			}
 		}
-		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %d on most, %s.", pc.Test, joinList(fewer))
+		holdAll := ""
+		if all > 0 {
+			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
+		}
+		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, joinList(fewer))
 	}
 	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
@@ -127,7 +137,10 @@ func methodsText(r *Results) string {
 	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
 	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise.",
 		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
-	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents and the slope of AUC against log2 of the area along each nested chain")
+	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
+	if len(s.Chains) > 0 {
+		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
+	}
 	if len(models) >= 2 {
 		b.WriteString(", the split of the sums of squares of the models × extents table (a property of the extents chosen) and Kendall's W of the model order (Legendre 2005); models were compared by their paired differences on each extent")
 	}
@@ -185,8 +198,19 @@ func resultNumbers(r *Results) string {
 		if sp == nil || sp.N == 0 || mv == nil {
 			continue
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extents (%s on %s, SE %s from the test records) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N,
-			f3(mv.BaseValue), mv.Base, f3(baseSE(r, m, mv.Base)), verdictPhrase(mv))
+		onBase := fmt.Sprintf("not scored on %s", mv.Base)
+		if mv.BaseDefined {
+			onBase = fmt.Sprintf("%s on %s, SE %s from the test records", f3(mv.BaseValue), mv.Base, f3(baseSE(r, m, mv.Base)))
+		}
+		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, plural(sp.N),
+			onBase, verdictPhrase(mv))
+		if sp.N == 1 {
+			se := ""
+			if sc := findScore(r, m, sp.Extents[0]); sc != nil {
+				se = fmt.Sprintf(" (SE %s from the test records)", f3(sc.AUCSE))
+			}
+			t = fmt.Sprintf("AUC of %s was %s on its one scored extent, %s%s, so no difference between extents could be formed", m, f3(sp.Min), sp.Extents[0], se)
+		}
 		if len(r.Settings.E) > 0 {
 			if pv := s.findModelVerdict(MetricKeyPartialROC(r.Settings.E[0]), m); pv != nil {
 				t += fmt.Sprintf("; its partial ROC ratio at E = %s was %s", fmtG(r.Settings.E[0]), verdictPhrase(pv))
@@ -200,7 +224,7 @@ func resultNumbers(r *Results) string {
 	}
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.Extents > 0 {
-			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extents, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse, rk.WithinNoise)
+			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
 	}
 	if s.Independence.Defined {
@@ -209,6 +233,16 @@ func resultNumbers(r *Results) string {
 	}
 	out += nullSentences(r)
 	return strings.TrimSpace(out)
+}
+
+// findScore returns the scored Score of model on extent, or nil.
+func findScore(r *Results, model, extent string) *Score {
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == model && sc.Extent == extent && sc.Scored {
+			return sc
+		}
+	}
+	return nil
 }
 
 // baseSE returns the placement SE of model's AUC on extent.
@@ -250,7 +284,7 @@ func reviewerText(r *Results) string {
 	var b strings.Builder
 	n := len(s.ScoredExtents)
 	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. ")
-	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d alternative evaluation extents", n)
+	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, plural(n))
 	if n > 0 {
 		lo, hi := -1.0, -1.0
 		for _, e := range r.Extents {
@@ -265,7 +299,12 @@ func reviewerText(r *Results) string {
 				}
 			}
 		}
-		fmt.Fprintf(&b, " spanning %s–%s km²", fmtArea(lo), fmtArea(hi))
+		if n == 1 {
+			fmt.Fprintf(&b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
+		} else {
+			// The headline's rounding, so that the same areas read the same.
+			fmt.Fprintf(&b, " (the base extent, %s, and %d other%s) %s", s.BaseExtent, n-1, plural(n-1), areaRange(lo, hi))
+		}
 	}
 	if s.TestPointsVary {
 		lo, hi := s.TestPoints[0], s.TestPoints[0]
@@ -275,18 +314,32 @@ func reviewerText(r *Results) string {
 		fmt.Fprintf(&b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
 	}
 	b.WriteString(". ")
-	fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we fixed in advance (AUC ±%s, partial ROC ratio ±%s, omission ±%s, Boyce index ±%s). ",
-		fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	if n != 1 {
+		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s). ",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
+		label := v.Label
+		for _, m := range s.Metrics {
+			if m.Key == v.Metric {
+				label = metricPhrase(m) // no comma inside a list
+			}
+		}
 		switch v.Verdict {
 		case JudgementRobust:
-			robust = append(robust, v.Label)
+			robust = append(robust, label)
 		case JudgementSensitive:
-			sensitive = append(sensitive, v.Label)
+			sensitive = append(sensitive, label)
 		default:
-			undetermined = append(undetermined, v.Label)
+			undetermined = append(undetermined, label)
 		}
+	}
+	if n == 1 {
+		// Nothing to compare: the verdicts are undetermined for want of a
+		// second extent, not of test records.
+		robust, sensitive, undetermined = nil, nil, nil
+		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
 	if len(sensitive) > 0 {
 		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
@@ -299,7 +352,7 @@ func reviewerText(r *Results) string {
 	}
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extents and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse)
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse)
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -312,33 +365,61 @@ func reviewerText(r *Results) string {
 
 // reviewerNullText tells the reviewer, for AUC on the base extent, whether
 // each model beats each null scored on the same test records (the paired
-// test of Sensitivity.AboveNull), or "" when no null was scored.
+// test of Sensitivity.AboveNull), or "" when no null was scored. What a
+// model that does not beat a null lacks depends on the null: the
+// distance-only null knows where the training records are, a null of the
+// user's is described by its name only.
 func reviewerNullText(s *Sensitivity) string {
-	var beat, not []string
 	gaps := s.baseAUCGaps()
 	if len(gaps) == 0 {
 		return ""
 	}
+	type byNull struct {
+		name, kind string
+		beat, not  []string
+	}
+	var ns []*byNull
+	index := map[string]*byNull{}
 	for _, bg := range gaps {
 		an, g := bg.an, bg.g
-		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s, against %s)", an.Model, signed3(g.Diff), signed3(g.Low), signed3(g.High), an.Null)
+		n := index[an.Null]
+		if n == nil {
+			n = &byNull{name: an.Null, kind: an.NullKind}
+			index[an.Null] = n
+			ns = append(ns, n)
+		}
+		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		if an.BaseReading == ReadingAbove {
-			beat = append(beat, part)
+			n.beat = append(n.beat, part)
 		} else {
-			not = append(not, part)
+			n.not = append(n.not, part)
+		}
+	}
+	var what []string
+	for _, n := range ns {
+		if n.kind == NullDistance {
+			what = append(what, fmt.Sprintf("a null that knows only where the training records are (%s: minus the distance to the nearest one; Hijmans 2012)", n.name))
+		} else {
+			what = append(what, fmt.Sprintf("the null %s", n.name))
 		}
 	}
 	var b strings.Builder
-	b.WriteString("We also scored a null that knows only where the training records are (minus the distance to the nearest one; Hijmans 2012) on the same extents and test records. ")
-	if len(beat) > 0 {
-		fmt.Fprintf(&b, "On the base extent the AUC of %s is above the null beyond noise. ", joinList(beat))
-	}
-	if len(not) > 0 {
-		verb := "does"
-		if len(not) > 1 {
-			verb = "do"
+	fmt.Fprintf(&b, "We also scored %s on the same extents and test records. ", joinList(what))
+	for _, n := range ns {
+		if len(n.beat) > 0 {
+			fmt.Fprintf(&b, "On the base extent the AUC of %s is above that of %s beyond noise. ", joinList(n.beat), n.name)
 		}
-		fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed the null's beyond noise, so on that extent AUC shows no skill beyond the geography of the records. ", joinList(not), verb)
+		if len(n.not) > 0 {
+			verb := "does"
+			if len(n.not) > 1 {
+				verb = "do"
+			}
+			lacks := "what " + n.name + " holds"
+			if n.kind == NullDistance {
+				lacks = "the geography of the records"
+			}
+			fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed that of %s beyond noise, so on that extent AUC shows no skill beyond %s. ", joinList(n.not), verb, n.name, lacks)
+		}
 	}
 	return b.String()
 }

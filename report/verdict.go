@@ -130,28 +130,63 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		return mv
 	}
 	big := mv.Diffs[mv.Largest]
-	largest := fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(big.Diff), big.Extent, signed3(big.Low), signed3(big.High))
-	if big.Method == "exact" {
-		largest = fmt.Sprintf("%s on %s (exact: no test point moves it)", signed3(big.Diff), big.Extent)
+	largest := "the largest is " + differenceText(big, m.Tolerance)
+	exact := big.Method == "exact"
+	if big.Diff == 0 {
+		// Every difference is 0: naming one extent as "the largest" would
+		// pick it arbitrarily.
+		largest = "every one is 0"
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
 		notOn = fmt.Sprintf(" It is undefined on %s.", joinList(mv.Undefined))
 	}
+	within, largestWithin := "lies within "+tol+" with its 95% interval", largest
+	if exact {
+		within = "(exact: no test point moves it) lies within " + tol
+		if big.Diff != 0 {
+			largestWithin = fmt.Sprintf("the largest is %s on %s", signedVs(big.Diff, m.Tolerance, -m.Tolerance), big.Extent)
+		}
+	}
 	switch {
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
-		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extents the difference from %s lies wholly beyond our tolerance of %s; the largest is %s.%s",
-			name, outside, len(mv.Diffs), a.base, tol, largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond our tolerance of %s; %s.%s",
+			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, tol, largest, notOn)
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
-		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s lies within %s with its 95%% interval; the largest is %s.",
-			name, a.base, tol, largest)
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
+	case allInside(definedDiffs(mv.Diffs)):
+		// Undetermined only because the score is undefined somewhere:
+		// the test points are not the reason.
+		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
+			name, joinList(mv.Undefined), a.base, within, largestWithin)
 	default:
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s",
-			name, tol, a.base, largest, notOn)
+			name, tol, a.base, differenceText(big, m.Tolerance), notOn)
 	}
 	return mv
+}
+
+// differenceText is "+0.078 on X (95% interval +0.063 to +0.093)", or
+// "(exact: no test point moves it)" for a difference without sampling
+// error; the bounds show on which side of ±tol they lie (signedVs).
+func differenceText(d ExtentDifference, tol float64) string {
+	if d.Method == "exact" {
+		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
+	}
+	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// definedDiffs returns the defined differences of ds.
+func definedDiffs(ds []ExtentDifference) []ExtentDifference {
+	var out []ExtentDifference
+	for _, d := range ds {
+		if d.Defined {
+			out = append(out, d)
+		}
+	}
+	return out
 }
 
 func allInside(ds []ExtentDifference) bool {
@@ -257,8 +292,8 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			if r.Extents == 0 {
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			} else {
-				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extents, worse on %d, within noise on %d (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Better, r.Extents, r.Worse, r.WithinNoise)
+				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
 			}
 			out = append(out, r)
 		}

@@ -1,0 +1,477 @@
+package report
+
+import (
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"areasweep/extent/vocab"
+)
+
+// The tests in this file hold the report's sentences to the numbers they
+// quote: each case is a situation cut from the sample (or hand-made) in
+// which a sentence once said more, or other, than its numbers.
+
+// setPaired applies fn to the paired records of metric and kind for model
+// on extent.
+func setPaired(r *Results, metric string, kind PairKind, model, extent string, fn func(p *Paired)) int {
+	n := 0
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		if p.Metric == metric && p.Kind == kind && p.Model == model && p.Extent == extent {
+			fn(p)
+			n++
+		}
+	}
+	return n
+}
+
+// analyzed runs Analyze on r and fails the test on an error.
+func analyzed(t *testing.T, r *Results) *Sensitivity {
+	t.Helper()
+	r.Sensitivity = nil
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	return r.Sensitivity
+}
+
+// intervalRe finds the "95% interval A to B" of a sentence.
+var intervalRe = regexp.MustCompile(`95% interval ([+-]?[0-9.]+) to ([+-]?[0-9.]+)`)
+
+// TestVerdictSentences checks the model verdict sentences against their
+// numbers in situations where a fixed template was false: exact
+// differences said to have a 95% interval, all-zero differences whose
+// "largest" named an arbitrary extent, a verdict left undetermined by an
+// undefined score blamed on too few test points, and interval bounds a
+// hair beyond the tolerance printed as the tolerance itself.
+func TestVerdictSentences(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		metric, model string
+		verdict       Judgement
+		want, notWant []string
+	}{
+		{name: "exact robust difference has no interval",
+			metric: "area_fraction_mtp", model: "truncated", verdict: JudgementRobust,
+			want:    []string{"(exact: no test point moves it) lies within ±0.05"},
+			notWant: []string{"95% interval"}},
+		{name: "all differences 0 name no extent",
+			metric: "omission_minimum_training_presence", model: "good", verdict: JudgementRobust,
+			want:    []string{"every one is 0"},
+			notWant: []string{"the largest is +0.000 on"}},
+		{name: "undefined on one extent, every other difference inside",
+			build: func(r *Results) {
+				setPaired(r, "omission_minimum_training_presence", PairedKindExtent, "good", "hull", func(p *Paired) {
+					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
+				})
+			},
+			metric: "omission_minimum_training_presence", model: "good", verdict: JudgementUndetermined,
+			want:    []string{"it is undefined on hull", "every difference from base that could be formed lies within ±0.05"},
+			notWant: []string{"too few test points"}},
+		{name: "lower bound a hair above the tolerance",
+			build: func(r *Results) {
+				for i := range r.Paired {
+					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+					}
+				}
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.0201, 0.0399 })
+			},
+			metric: "auc", model: "good", verdict: JudgementSensitive,
+			want: []string{"+0.030 on whole (95% interval +0.0201 to +0.040)"}},
+		{name: "lower bound exactly at the tolerance",
+			build: func(r *Results) {
+				for i := range r.Paired {
+					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+					}
+				}
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.02, 0.04 })
+			},
+			metric: "auc", model: "good", verdict: JudgementUndetermined,
+			want: []string{"too few test points", "(95% interval +0.020 to +0.040)"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			if c.build != nil {
+				c.build(r)
+			}
+			s := analyzed(t, r)
+			mv := s.findModelVerdict(c.metric, c.model)
+			if mv == nil {
+				t.Fatalf("no verdict for %s of %s", c.metric, c.model)
+			}
+			if mv.Verdict != c.verdict {
+				t.Errorf("verdict %s, want %s: %s", mv.Verdict, c.verdict, mv.Sentence)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(mv.Sentence, w) {
+					t.Errorf("sentence lacks %q: %s", w, mv.Sentence)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(mv.Sentence, w) {
+					t.Errorf("sentence says %q: %s", w, mv.Sentence)
+				}
+			}
+			// Every printed bound lies on the same side of ±T as the
+			// bound itself.
+			if mv.Largest >= 0 {
+				d := mv.Diffs[mv.Largest]
+				if m := intervalRe.FindStringSubmatch(mv.Sentence); m != nil {
+					for k, v := range []float64{d.Low, d.High} {
+						p, err := strconv.ParseFloat(m[k+1], 64)
+						if err != nil {
+							t.Fatal(err)
+						}
+						for _, ref := range []float64{mv.Tolerance, -mv.Tolerance} {
+							if (p > ref) != (v > ref) || (p < ref) != (v < ref) {
+								t.Errorf("bound %v printed %s: not on its side of %v", v, m[k+1], ref)
+							}
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestSignedVs checks the bounds printed against a cut-off.
+func TestSignedVs(t *testing.T) {
+	cases := []struct {
+		v    float64
+		refs []float64
+		want string
+	}{
+		{0.063, []float64{0}, "+0.063"},
+		{-0.0004, []float64{0}, "-0.0004"}, // signed3 prints "+0.000"
+		{0.0004, []float64{0}, "+0.0004"},  // looks like touching 0 at three decimals
+		{0, []float64{0}, "+0.000"},        // exactly the cut-off
+		{0.0201, []float64{0.02, -0.02}, "+0.0201"},
+		{-0.02001, []float64{0.02, -0.02}, "-0.02001"},
+		{0.02, []float64{0.02, -0.02}, "+0.020"},
+		{0.0249, []float64{0.02, -0.02}, "+0.025"}, // rounds away from the cut-off: three decimals tell
+	}
+	for _, c := range cases {
+		if got := signedVs(c.v, c.refs...); got != c.want {
+			t.Errorf("signedVs(%v, %v) = %q, want %q", c.v, c.refs, got, c.want)
+		}
+	}
+}
+
+// TestAboveNullBorderline: an interval that only just includes or
+// excludes 0 is printed so that the reader sees which (the sign of a
+// bound that rounds to 0.000 at three decimals was lost); the gap's ends
+// are named as the smallest and largest extents, not as the smallest and
+// largest gaps.
+func TestAboveNullBorderline(t *testing.T) {
+	cases := []struct {
+		name    string
+		low     float64
+		reading string
+		want    string
+	}{
+		{"interval just includes 0", -0.0004, ReadingNotAbove, "95% interval -0.0004 to +0.140 that includes 0"},
+		{"interval just above 0", 0.0004, ReadingAbove, "95% interval +0.0004 to +0.140"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			for i := range r.Paired {
+				if r.Paired[i].Kind == PairedKindNull {
+					r.Paired[i].Low = 0.06
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Kind == PairedKindNull && p.Extent == "base" {
+					p.Low = c.low
+				}
+			}
+			s := analyzed(t, r)
+			for _, an := range s.AboveNull {
+				if an.Metric != "auc" || an.Model != "good" {
+					continue
+				}
+				if an.BaseReading != c.reading {
+					t.Errorf("reading %s, want %s", an.BaseReading, c.reading)
+				}
+				if !strings.Contains(an.Sentence, c.want) {
+					t.Errorf("sentence lacks %q: %s", c.want, an.Sentence)
+				}
+				if !strings.Contains(an.Sentence, "(the smallest extent)") {
+					t.Errorf("sentence does not say that the gap's ends are extents: %s", an.Sentence)
+				}
+				head := strings.Replace(c.want, " that includes 0", "", 1)
+				if !strings.Contains(s.Headline, head) {
+					t.Errorf("headline lacks %q: %s", head, s.Headline)
+				}
+				return
+			}
+			t.Fatal("no AUC comparison of good with the null")
+		})
+	}
+}
+
+// nullPaired returns one AUC record of kind null per scored extent of
+// the first model, +0.100 with interval +0.060 to +0.140 (the fixture of
+// TestAboveNullReadings).
+func nullPaired(r *Results) []Paired {
+	var out []Paired
+	for _, sc := range r.Scores {
+		if sc.Model != "good" || !sc.Scored {
+			continue
+		}
+		out = append(out, Paired{Metric: "auc", Kind: PairedKindNull, Model: "good", Extent: sc.Extent, OtherModel: DistanceNullName, OtherExtent: sc.Extent,
+			CommonPoints: sc.TestPoints, Method: "placements", Defined: true, A: 0.9, B: 0.8, Diff: 0.1, SE: 0.02, Low: 0.06, High: 0.14})
+	}
+	return out
+}
+
+// TestReviewerNulls: the reply to a reviewer describes each null as what
+// it is. A null of the user's (an effort surface, say) is not the
+// distance-only null, and a model that does not beat it lacks what that
+// null holds, not "skill beyond the geography of the records".
+func TestReviewerNulls(t *testing.T) {
+	cases := []struct {
+		name          string
+		kind          string
+		want, notWant []string
+	}{
+		{"distance-only null", NullDistance,
+			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no skill beyond the geography of the records"}, nil},
+		{"user null", "user",
+			[]string{"We also scored the null " + DistanceNullName + " on", "no skill beyond what " + DistanceNullName + " holds"},
+			[]string{"knows only where the training records are", "geography", "Hijmans"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			for i := range r.Models {
+				if r.Models[i].IsNull() {
+					r.Models[i].NullKind = c.kind
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.Low = -0.01 })
+			analyzed(t, r)
+			rv := reviewerNullText(r.Sensitivity)
+			for _, w := range c.want {
+				if !strings.Contains(rv, w) {
+					t.Errorf("reply lacks %q: %s", w, rv)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(rv, w) {
+					t.Errorf("reply says %q: %s", w, rv)
+				}
+			}
+		})
+	}
+}
+
+// TestHeadlineRankings: the headline gives every pair of models, the one
+// better beyond noise on more extents first, and never "A is better than
+// B on 0 of n extents" (true, but read as a finding).
+func TestHeadlineRankings(t *testing.T) {
+	cases := []struct {
+		rk   ModelRanking
+		want string
+	}{
+		{ModelRanking{Model: "a", Other: "b", Extents: 13, Better: 13}, "a is better than b beyond noise on 13 of 13 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 13, Worse: 12, WithinNoise: 1}, "b is better than a beyond noise on 12 of 13 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 6, Better: 1, Worse: 4, WithinNoise: 1}, "b is better than a beyond noise on 4 of 6 extents and worse on 1"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 6, WithinNoise: 6}, "a and b differ beyond noise on none of 6 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 1, Better: 1}, "a is better than b beyond noise on 1 of 1 extent"},
+	}
+	for _, c := range cases {
+		if got := rankingClause(c.rk); got != c.want {
+			t.Errorf("%+v: %q, want %q", c.rk, got, c.want)
+		}
+	}
+	// The sample's three models: every pair, in the headline.
+	r := analyzedSample(t)
+	for _, w := range []string{
+		"By AUC, good and truncated differ beyond noise on none of 6 extents",
+		"good is better than broad beyond noise on 6 of 8 extents",
+		"truncated is better than broad beyond noise on 4 of 6 extents",
+		"The partial ROC ratio at E = 0.05 is extent-sensitive for good, truncated and broad.",
+	} {
+		if !strings.Contains(r.Sensitivity.Headline, w) {
+			t.Errorf("headline lacks %q: %s", w, r.Sensitivity.Headline)
+		}
+	}
+}
+
+// onlyExtents keeps the extents ids of r (status ok) and marks the others
+// empty, with their scores, rings and paired records dropped.
+func onlyExtents(r *Results, ids ...string) {
+	keep := map[string]bool{}
+	for _, id := range ids {
+		keep[id] = true
+	}
+	for i := range r.Extents {
+		if !keep[r.Extents[i].ID] {
+			r.Extents[i].Status = vocab.StatusEmpty
+		}
+	}
+	var sc []Score
+	for _, s := range r.Scores {
+		if keep[s.Extent] {
+			sc = append(sc, s)
+		}
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if keep[p.Extent] && keep[p.OtherExtent] {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	r.Rings = nil
+}
+
+// TestMethodsText checks the methods paragraph, the results and the reply
+// to a reviewer in situations where they said more than the numbers.
+func TestMethodsTextSituations(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "the sample: half the extents hold every test point",
+			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
+				"on 8 evaluation extents (the base extent, base, and 7 others) from 28.2 to 231 thousand km²",
+				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05",
+				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
+			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,"}},
+		{name: "no extent holds every test point",
+			build: func(r *Results) {
+				for i := range r.Extents {
+					if r.Extents[i].ID == "whole" || r.Extents[i].ID == "region_b100" || r.Extents[i].ID == "region_b200" || r.Extents[i].ID == "points_b100" {
+						r.Extents[i].TestPoints = 21
+					}
+				}
+			},
+			want:    []string{"the extents differ in their test records: base 21, region_b50 21, region_b100 21,"},
+			notWant: []string{"on most", "all 22 on"}},
+		{name: "a model not scored on the base extent",
+			build: func(r *Results) {
+				for i := range r.Scores {
+					if r.Scores[i].Model == "truncated" && r.Scores[i].Extent == "base" {
+						r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has no data on 6% of the extent's cells"
+					}
+				}
+			},
+			want:    []string{"AUC of truncated ranged 0.797–0.932 over 5 extents (not scored on base) and was undetermined (not scored on base)"},
+			notWant: []string{"0.000 on base", "SE 0.000"}},
+		{name: "no nested chain",
+			build:   func(r *Results) { r.Rings = nil },
+			notWant: []string{"slope of AUC"}},
+		{name: "one extent",
+			build: func(r *Results) { onlyExtents(r, "base") },
+			want: []string{"Only one evaluation extent, base (40,600 km², 21 test points), could be scored, so no score can be compared across extents; AUC there: good 0.830,",
+				"AUC of good was 0.830 on its one scored extent, base (SE 0.046 from the test records)", "on 1 evaluation extent (base, 40,600 km²)",
+				"With one extent, no score can be compared across extents."},
+			notWant: []string{"1 extents", "Across 1", "ranged 0.830–0.830", "too few"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			if c.build != nil {
+				c.build(r)
+			}
+			s := analyzed(t, r)
+			text := s.Headline + "\n" + methodsText(r)
+			for _, w := range c.want {
+				if !strings.Contains(text, w) {
+					t.Errorf("text lacks %q:\n%s", w, text)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(text, w) {
+					t.Errorf("text says %q:\n%s", w, text)
+				}
+			}
+		})
+	}
+}
+
+// TestTruncationCutoffsOurs: the truncation sentences call their cut-offs
+// ours and quote them.
+func TestTruncationCutoffsOurs(t *testing.T) {
+	r := analyzedSample(t)
+	for _, tc := range r.Sensitivity.Truncation {
+		for _, w := range []string{"by our cut-offs", "flagged from 20%"} {
+			if !strings.Contains(tc.Sentence, w) {
+				t.Errorf("%s: lacks %q: %s", tc.Model, w, tc.Sentence)
+			}
+		}
+		if strings.Contains(tc.Sentence, "extent(s)") {
+			t.Errorf("%s: %s", tc.Model, tc.Sentence)
+		}
+	}
+}
+
+// TestMetricsCaptionBars: the caption of the scores-against-area figure
+// names the resamples each bar comes from. AUC's bar is ± Score.AUCBootSD,
+// the SD over the full-size paired resamples (it estimates the AUC's own
+// standard error); it was described as the SD of the half-size partial
+// ROC bootstrap, "wider than the uncertainty of the full-sample AUC".
+func TestMetricsCaptionBars(t *testing.T) {
+	cases := []struct {
+		name          string
+		paired, iters int
+		aucBar        bool
+		want, notWant []string
+	}{
+		{"the sample's settings", 100, 200, true,
+			[]string{"AUC bars: plus and minus one SD of AUC over the 100 full-size paired resamples", "the mean ratio of the 200 resamples of 50% of the test records"},
+			[]string{"wider than", "SD of AUC over the 200"}},
+		{"one paired resample", 1, 200, false,
+			[]string{"the mean ratio of the 200 resamples"}, []string{"AUC bars"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			r.Settings.PairedResamples, r.Settings.Iterations = c.paired, c.iters
+			analyzed(t, r)
+			f := metricsFigure(r)
+			for _, w := range c.want {
+				if !strings.Contains(f.Caption, w) {
+					t.Errorf("caption lacks %q: %s", w, f.Caption)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(f.Caption, w) {
+					t.Errorf("caption says %q: %s", w, f.Caption)
+				}
+			}
+			m := r.Sensitivity.Metrics[0]
+			pts := metricPoints(r, m, "good")
+			if len(pts) == 0 {
+				t.Fatal("no AUC point")
+			}
+			for _, p := range pts {
+				if p.bar != c.aucBar {
+					t.Errorf("AUC bar %v, want %v", p.bar, c.aucBar)
+				}
+				var sd float64
+				for _, sc := range r.Scores {
+					if sc.Model == "good" && sc.Scored && sc.AreaKm2 == p.area {
+						sd = sc.AUCBootSD
+					}
+				}
+				if p.bar && (math.Abs(p.hi-p.v-sd) > 1e-12 || math.Abs(p.v-p.lo-sd) > 1e-12) {
+					t.Errorf("bar %v..%v around %v, want ± %v", p.lo, p.hi, p.v, sd)
+				}
+			}
+		})
+	}
+}
