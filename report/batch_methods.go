@@ -160,7 +160,7 @@ func undefinedTail(n int) string {
 	if n <= 0 {
 		return ""
 	}
-	return fmt.Sprintf("; on %d the difference could not be formed", n)
+	return fmt.Sprintf("; on %d the difference could not be formed or rests on fewer than %d test points (not read)", n, MinPairedPoints)
 }
 
 // ies is the plural ending of "study".

@@ -13,6 +13,7 @@ import (
 type analysisView struct {
 	BaseExtent      string
 	PairedResamples int
+	MinPairedPoints int
 	ModelVerdicts   []badge
 	Differences     htmlTable
 	Rankings        *sentencesTable
@@ -57,7 +58,7 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints}
 	// Verdicts with every paired difference from the base extent.
 	var rows [][]cell
 	for _, mv := range s.ModelVerdicts {

@@ -377,6 +377,7 @@ func reviewerNullText(s *Sensitivity) string {
 	type byNull struct {
 		name, kind string
 		beat, not  []string
+		few        []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -389,6 +390,10 @@ func reviewerNullText(s *Sensitivity) string {
 			ns = append(ns, n)
 		}
 		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if an.BaseReading == ReadingTooFew {
+			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
+			continue
+		}
 		if an.BaseReading == ReadingAbove {
 			n.beat = append(n.beat, part)
 		} else {
@@ -419,6 +424,9 @@ func reviewerNullText(s *Sensitivity) string {
 				lacks = "the geography of the records"
 			}
 			fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed that of %s beyond noise, so on that extent AUC shows no skill beyond %s. ", joinList(n.not), verb, n.name, lacks)
+		}
+		if len(n.few) > 0 {
+			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we judge no difference on fewer than %d). ", joinList(n.few), n.name, MinPairedPoints)
 		}
 	}
 	return b.String()

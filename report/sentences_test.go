@@ -475,3 +475,53 @@ func TestMetricsCaptionBars(t *testing.T) {
 		})
 	}
 }
+
+// TestFewTestPoints: a paired difference on fewer than MinPairedPoints
+// common test points is reported, not judged. With 3 test points the
+// paired AUC interval can have zero width and read as "wholly beyond the
+// tolerance", the resamples' percentiles likewise; no verdict, ranking or
+// reading against a null rests on them.
+func TestFewTestPoints(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Model == "good" || p.OtherModel == "good" {
+			p.CommonPoints = 3
+			if p.Metric == "auc" && p.Kind == PairedKindExtent {
+				p.Diff, p.Low, p.High = 0.1, 0.1, 0.1 // zero width: every point moved alike
+			}
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "Not judged, on fewer than 10 common test points (our cut-off): region_b50 (3)") {
+		t.Errorf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	for _, d := range mv.Diffs {
+		if d.Defined && d.Position != positionTooFew {
+			t.Errorf("%s: position %s on 3 test points", d.Extent, d.Position)
+		}
+	}
+	for _, rk := range s.Rankings {
+		if rk.Model == "good" && rk.Extents != 0 {
+			t.Errorf("%s: good compared on %d extents of 3 test points", rk.Metric, rk.Extents)
+		}
+	}
+	for _, an := range s.AboveNull {
+		if an.Model != "good" {
+			continue
+		}
+		if an.BaseReading != ReadingTooFew || an.Above+an.NotAbove+an.Below != 0 || !strings.Contains(an.Sentence, "whether it beats the null is not told") {
+			t.Errorf("above null: %+v", an)
+		}
+	}
+	if strings.Contains(s.Headline, "null: good beats") || strings.Contains(s.Headline, "good does not beat") || !strings.Contains(s.Headline, "whether good beats "+DistanceNullName+" on base is not told") {
+		t.Errorf("headline: %s", s.Headline)
+	}
+	if rv := reviewerNullText(s); strings.Contains(rv, "no skill") || !strings.Contains(rv, "too few to compare good (3 common test records)") {
+		t.Errorf("reply: %s", rv)
+	}
+	if !strings.Contains(aboveNullNote, "fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
+		t.Errorf("the table note quotes another cut-off: %s", aboveNullNote)
+	}
+}

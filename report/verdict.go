@@ -36,6 +36,10 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 	return out, vary
 }
 
+// positionTooFew is the position of a difference on fewer than
+// MinPairedPoints common test points: reported, not judged.
+const positionTooFew = "too_few"
+
 // position places the interval lo..hi against -tol..+tol.
 func position(lo, hi, tol float64) string {
 	switch {
@@ -81,6 +85,9 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	d.Defined = true
 	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
 	d.Position = position(d.Low, d.High, m.Tolerance)
+	if p.CommonPoints < MinPairedPoints {
+		d.Position = positionTooFew
+	}
 	return d
 }
 
@@ -162,8 +169,8 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
 			name, joinList(mv.Undefined), a.base, within, largestWithin)
 	default:
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s",
-			name, tol, a.base, differenceText(big, m.Tolerance), notOn)
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s%s",
+			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
 	}
 	return mv
 }
@@ -176,6 +183,21 @@ func differenceText(d ExtentDifference, tol float64) string {
 		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
 	}
 	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// tooFewText names the differences left unjudged for resting on fewer
+// than MinPairedPoints test points, or "".
+func tooFewText(ds []ExtentDifference) string {
+	var few []string
+	for _, d := range ds {
+		if d.Position == positionTooFew {
+			few = append(few, fmt.Sprintf("%s (%d)", d.Extent, d.CommonPoints))
+		}
+	}
+	if len(few) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
 }
 
 // definedDiffs returns the defined differences of ds.
@@ -272,7 +294,7 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				}
 				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
-				if !d.Defined {
+				if !d.Defined || d.Position == positionTooFew {
 					continue
 				}
 				r.Extents++
@@ -290,7 +312,7 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				}
 			}
 			if r.Extents == 0 {
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent with at least %d common test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
 			} else {
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
