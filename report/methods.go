@@ -156,7 +156,7 @@ func methodsText(r *Results) string {
 	b.WriteString("\n\n")
 	b.WriteString("## References\n\n")
 	refs := slices.Clone(references)
-	if len(nulls(r)) > 0 {
+	if strings.Contains(b.String(), "Hijmans 2012") {
 		refs = append(refs, hijmans2012)
 		slices.Sort(refs)
 	}
@@ -174,7 +174,8 @@ func plural(n int) string {
 }
 
 // references are the methods cited in methods.md.
-// hijmans2012 is cited when the report holds a null.
+// hijmans2012 is listed when the text cites it (the distance-only null and
+// the sorting bias; a null of the user's alone does not).
 const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distribution models: removing spatial sorting bias and calibration with a null model. Ecology 93: 679-688."
 
 var references = []string{

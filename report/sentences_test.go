@@ -521,7 +521,110 @@ func TestFewTestPoints(t *testing.T) {
 	if rv := reviewerNullText(s); strings.Contains(rv, "no skill") || !strings.Contains(rv, "too few to compare good (3 common test records)") {
 		t.Errorf("reply: %s", rv)
 	}
-	if !strings.Contains(aboveNullNote, "fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
-		t.Errorf("the table note quotes another cut-off: %s", aboveNullNote)
+	for _, text := range []string{aboveNullNote, ExtentSensitiveDefinition} {
+		if !strings.Contains(text, "fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
+			t.Errorf("quotes another cut-off: %s", text)
+		}
+	}
+}
+
+// TestCutoffShares: a share compared with a cut-off is printed so that it
+// does not read as the cut-off itself (19.96% of the area at the floor is
+// not "20%, flagged from 20%"), and a share exactly at the warning level
+// is said to be at it, not below it.
+func TestCutoffShares(t *testing.T) {
+	cases := []struct {
+		v, cut float64
+		want   string
+	}{
+		{0.1996, 0.20, "19.96%"},
+		{0.2004, 0.20, "20.04%"},
+		{0.20, 0.20, "20%"},
+		{0.69, 0.25, "69%"},
+		{0.00003, 0.20, "0.003%"},
+	}
+	for _, c := range cases {
+		if got := pctVs(c.v, c.cut); got != c.want {
+			t.Errorf("pctVs(%v, %v) = %q, want %q", c.v, c.cut, got, c.want)
+		}
+	}
+
+	r := loadSample(t)
+	for i := range r.Models {
+		r.Models[i].FloorShare = 0.1996
+	}
+	for _, tc := range analyzed(t, r).Truncation {
+		if len(tc.Tails) > 0 {
+			continue // flagged by its ROC tails; the sentence is about them
+		}
+		if tc.FloorFlag || !strings.Contains(tc.Sentence, "covers 19.96% of the valid area (flagged from 20%)") {
+			t.Errorf("%s: floor flag %v: %s", tc.Model, tc.FloorFlag, tc.Sentence)
+		}
+	}
+
+	// 5 of 20 test points near a training point: 25%, at the level.
+	r = loadSample(t)
+	k, near := 0, 0
+	for i := range r.Points {
+		p := &r.Points[i]
+		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
+			continue
+		}
+		switch {
+		case k >= 20:
+			p.Status = vocab.PointThinned
+		case near < 5:
+			p.NearestTrainKm, near = 0.5, near+1
+		default:
+			p.NearestTrainKm = 500
+		}
+		k++
+	}
+	ind := analyzed(t, r).Independence
+	if ind.N != 20 || ind.NearCount != 5 || ind.Warn || !strings.Contains(ind.Sentence, "25% lie within 3 cell widths") || !strings.Contains(ind.Sentence, "at our 25% warning level (we warn above it)") {
+		t.Errorf("%d of %d near, warn %v: %s", ind.NearCount, ind.N, ind.Warn, ind.Sentence)
+	}
+}
+
+// TestHijmansCitedWhenCited: the reference list holds Hijmans (2012) when
+// the text cites it (the distance-only null, the sorting bias), not for a
+// null of the user's alone.
+func TestHijmansCitedWhenCited(t *testing.T) {
+	for _, kind := range []string{NullDistance, "user"} {
+		r := withNull(t)
+		for i := range r.Models {
+			if r.Models[i].IsNull() {
+				r.Models[i].NullKind = kind
+			}
+		}
+		if kind != NullDistance {
+			for i := range r.Extents {
+				r.Extents[i].SortingBias = nil // only the distance-only null gives it
+			}
+		}
+		analyzed(t, r)
+		text := methodsText(r)
+		refs := text[strings.Index(text, "## References"):]
+		cited := strings.Contains(text[:strings.Index(text, "## References")], "Hijmans 2012")
+		if listed := strings.Contains(refs, "Hijmans, R.J. (2012)"); listed != cited || cited != (kind == NullDistance) {
+			t.Errorf("%s null: cited %v, listed %v", kind, cited, listed)
+		}
+	}
+}
+
+// TestChainSentenceAgainstTheChange: when steps go both ways, the step of
+// largest share can go against the chain's change; the sentence says so
+// instead of "-500% of the gain comes from".
+func TestChainSentenceAgainstTheChange(t *testing.T) {
+	cs := ChainSummary{Chain: "c", Model: "m", Members: []string{"a", "b", "c", "d"}, MemberAreasKm2: []float64{10, 20, 40, 80},
+		StartAUC: 0.80, EndAUC: 0.81, Change: 0.01, SharesDefined: true, Largest: 0,
+		Steps: []ChainStep{
+			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.80, AUCOuter: 0.75, AUCRing: 0.70, AUCRingDefined: true, Change: -0.05, Share: -5},
+			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.75, AUCOuter: 0.78, AUCRing: 0.81, AUCRingDefined: true, Change: 0.03, Share: 3},
+			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.78, AUCOuter: 0.81, AUCRing: 0.84, AUCRingDefined: true, Change: 0.03, Share: 3},
+		}}
+	got := chainSentence(&cs)
+	if strings.Contains(got, "-500% of the gain comes") || !strings.Contains(got, "the largest step goes against the gain (-500% of it): the ring b minus a") {
+		t.Errorf("%s", got)
 	}
 }
