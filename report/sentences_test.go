@@ -628,3 +628,40 @@ func TestChainSentenceAgainstTheChange(t *testing.T) {
 		t.Errorf("%s", got)
 	}
 }
+
+// TestRankingSentenceReasons: a model comparison that cannot be made says
+// why: no difference defined (an undefined score), or too few common test
+// points; the cut-off is not blamed for an undefined score.
+func TestRankingSentenceReasons(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(p *Paired)
+		want, notWant string
+	}{
+		{"undefined on every extent", func(p *Paired) { p.Defined = false },
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
+		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points.", ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Metric == "partial_roc_e0.05" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" {
+					c.build(p)
+				}
+			}
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric != "partial_roc_e0.05" || rk.Model != "good" || rk.Other != "truncated" {
+					continue
+				}
+				if rk.Sentence != c.want || (c.notWant != "" && strings.Contains(rk.Sentence, c.notWant)) {
+					t.Errorf("%q, want %q", rk.Sentence, c.want)
+				}
+				return
+			}
+			t.Fatal("no comparison of good and truncated")
+		})
+	}
+}

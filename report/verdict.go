@@ -288,12 +288,16 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	for i, ma := range a.models {
 		for _, mb := range a.models[i+1:] {
 			r := ModelRanking{Metric: m.Key, Model: ma, Other: mb, Diffs: []ExtentDifference{}}
+			tooFew := 0
 			for _, e := range a.extents {
 				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
 					continue
 				}
 				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
+				if d.Position == positionTooFew {
+					tooFew++
+				}
 				if !d.Defined || d.Position == positionTooFew {
 					continue
 				}
@@ -311,11 +315,17 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 					r.WithinNoise++
 				}
 			}
-			if r.Extents == 0 {
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent with at least %d common test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
-			} else {
+			switch {
+			case r.Extents == 0 && tooFew > 0:
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
+			case r.Extents == 0:
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
+				if tooFew > 0 {
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+				}
 			}
 			out = append(out, r)
 		}
