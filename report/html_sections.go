@@ -178,7 +178,7 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 		for _, rk := range er.Ranks {
 			row = append(row, nc(rk, 1))
 		}
-		row = append(row, tc(strings.Join(er.Order, " > ")), tc(yesNo(er.DiffersFromBase)))
+		row = append(row, tc(orderText(d.Models, er.Ranks)), tc(yesNo(er.DiffersFromBase)))
 		rows = append(rows, row)
 	}
 	head := []string{"extent"}
@@ -223,6 +223,29 @@ func chainsSection(s *Sensitivity) *chainsView {
 	}
 	v.Slopes = table("tbl-chain-slopes", []string{"nested chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
 	return v
+}
+
+// orderText writes the models best first by their ranks: "a > b = c",
+// with "=" between models of the same (mid-)rank, which tie on the point
+// estimate (ties in model order).
+func orderText(models []string, ranks []float64) string {
+	order := orderByRank(models, ranks)
+	rank := map[string]float64{}
+	for i, m := range models {
+		rank[m] = ranks[i]
+	}
+	var b strings.Builder
+	for i, m := range order {
+		if i > 0 {
+			if rank[m] == rank[order[i-1]] {
+				b.WriteString(" = ")
+			} else {
+				b.WriteString(" > ")
+			}
+		}
+		b.WriteString(m)
+	}
+	return b.String()
 }
 
 func yesNo(b bool) string {

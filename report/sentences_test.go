@@ -665,3 +665,40 @@ func TestRankingSentenceReasons(t *testing.T) {
 		})
 	}
 }
+
+// TestOrderText: the order of the models on an extent shows ties as "="
+// ("a > b" for two models with the same AUC said one was above the
+// other).
+func TestOrderText(t *testing.T) {
+	cases := []struct {
+		models []string
+		ranks  []float64
+		want   string
+	}{
+		{[]string{"a", "b", "c"}, []float64{1, 2, 3}, "a > b > c"},
+		{[]string{"a", "b", "c"}, []float64{3, 1.5, 1.5}, "b = c > a"},
+		{[]string{"a", "b"}, []float64{1.5, 1.5}, "a = b"},
+	}
+	for _, c := range cases {
+		if got := orderText(c.models, c.ranks); got != c.want {
+			t.Errorf("%v %v: %q, want %q", c.models, c.ranks, got, c.want)
+		}
+	}
+	// Two models with the same AUC everywhere (one a rescaling of the
+	// other): the page's order table says they tie.
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			for j := range r.Scores {
+				if r.Scores[j].Model == "good" && r.Scores[j].Extent == r.Scores[i].Extent {
+					r.Scores[i].AUC = r.Scores[j].AUC
+				}
+			}
+		}
+	}
+	s := analyzed(t, r)
+	v := decompositionSection(s, map[string]string{})
+	if v == nil || v.Ranking == nil || !strings.Contains(string(v.Ranking.Body()), "good = broad") {
+		t.Errorf("order table without the tie")
+	}
+}
