@@ -172,14 +172,14 @@ func headline(a *analysis, s *Sensitivity) string {
 	} else {
 		fmt.Fprintf(&b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
 		var parts []string
-		tol := ""
+		against := ""
 		for _, m := range a.models {
 			sp := s.findSpread("auc", m)
 			mv := s.findModelVerdict("auc", m)
 			if sp == nil || sp.N == 0 || mv == nil {
 				continue
 			}
-			tol = fmtG(mv.Tolerance)
+			against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
 			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
 		}
 		if len(parts) == 0 {
@@ -187,7 +187,7 @@ func headline(a *analysis, s *Sensitivity) string {
 			return b.String()
 		}
 		b.WriteString(strings.Join(parts, "; "))
-		fmt.Fprintf(&b, ", against our tolerance of ±%s.", tol)
+		fmt.Fprintf(&b, ", against %s.", against)
 		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
 			key := MetricKeyPartialROC(a.r.Settings.E[0])
 			var mvs []ModelVerdict

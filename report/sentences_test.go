@@ -702,3 +702,26 @@ func TestOrderText(t *testing.T) {
 		t.Errorf("order table without the tie")
 	}
 }
+
+// TestToleranceText: a tolerance is called ours only when it is our
+// default; one the user set is the run's.
+func TestToleranceText(t *testing.T) {
+	for _, c := range []struct {
+		tol  float64
+		want string
+	}{{DefaultToleranceAUC, "against our tolerance of ±0.02"}, {0.3, "against the tolerance of ±0.3 set for this run"}} {
+		r := loadSample(t)
+		r.Settings.ToleranceAUC = c.tol
+		s := analyzed(t, r)
+		if !strings.Contains(s.Headline, c.want) {
+			t.Errorf("tolerance %v: headline lacks %q: %s", c.tol, c.want, s.Headline)
+		}
+		if c.tol != DefaultToleranceAUC {
+			for _, mv := range s.ModelVerdicts {
+				if strings.Contains(mv.Sentence, "our tolerance of ±0.3") {
+					t.Errorf("%s", mv.Sentence)
+				}
+			}
+		}
+	}
+}

@@ -158,8 +158,8 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	switch {
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
-		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond our tolerance of %s; %s.%s",
-			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, tol, largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s",
+			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn)
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
@@ -173,6 +173,19 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
 	}
 	return mv
+}
+
+// toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
+// it is our default (DefaultToleranceAUC and the others), "the tolerance
+// of ±0.3 set for this run" when the user chose another.
+func toleranceText(m MetricInfo) string {
+	def := map[MetricKind]float64{MetricAUC: DefaultToleranceAUC, MetricAUCUnweighted: DefaultToleranceAUC,
+		MetricPartialROC: DefaultTolerancePartialROC, MetricOmission: DefaultToleranceOmission,
+		MetricAreaFraction: DefaultToleranceOmission, MetricBoyce: DefaultToleranceBoyce}
+	if d, ok := def[m.Kind]; ok && d == m.Tolerance {
+		return "our tolerance of ±" + fmtG(m.Tolerance)
+	}
+	return "the tolerance of ±" + fmtG(m.Tolerance) + " set for this run"
 }
 
 // differenceText is "+0.078 on X (95% interval +0.063 to +0.093)", or
