@@ -135,8 +135,8 @@ func methodsText(r *Results) string {
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
 	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
-	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise.",
-		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records was not judged.",
+		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -236,6 +236,16 @@ func resultNumbers(r *Results) string {
 	return strings.TrimSpace(out)
 }
 
+// defaultsNote says, inside the list of tolerances, that they are
+// areasweep's defaults when all of them are: not a published standard.
+func defaultsNote(st Settings) string {
+	if st.ToleranceAUC == DefaultToleranceAUC && st.TolerancePartialROC == DefaultTolerancePartialROC &&
+		st.ToleranceOmission == DefaultToleranceOmission && st.ToleranceBoyce == DefaultToleranceBoyce {
+		return "; areasweep's defaults, not a published standard"
+	}
+	return ""
+}
+
 // findScore returns the scored Score of model on extent, or nil.
 func findScore(r *Results, model, extent string) *Score {
 	for i := range r.Scores {
@@ -316,8 +326,8 @@ func reviewerText(r *Results) string {
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s). ",
-			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
 	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
