@@ -726,3 +726,17 @@ func TestToleranceText(t *testing.T) {
 		}
 	}
 }
+
+// TestEffectCaptionCutoff: the batch figure's caption does not call every
+// bar beyond the band extent-sensitive: one on fewer than MinPairedPoints
+// common test points is not judged.
+func TestEffectCaptionCutoff(t *testing.T) {
+	s, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, ok := effectFigure(s)
+	if !ok || !strings.Contains(f.Caption, "unless it rests on fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
+		t.Errorf("caption: %s", f.Caption)
+	}
+}
