@@ -338,4 +338,5 @@ const aboveNullNote = "Model minus null on each extent, on the test points both 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0. The partial ROC ratio and every sentence are under Analysis, Model minus null."
+	"\"below\" when it lies wholly below 0, \"too few\" (not read) on fewer than 10 common test points (our cut-off). " +
+	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

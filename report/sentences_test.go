@@ -522,7 +522,7 @@ func TestFewTestPoints(t *testing.T) {
 	if rv := reviewerNullText(s); strings.Contains(rv, "no skill") || !strings.Contains(rv, "too few to compare good (3 common test records)") {
 		t.Errorf("reply: %s", rv)
 	}
-	for _, text := range []string{aboveNullNote, ExtentSensitiveDefinition} {
+	for _, text := range []string{aboveNullNote, aboveNullSummaryNote, ExtentSensitiveDefinition} {
 		if !strings.Contains(text, "fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
 			t.Errorf("quotes another cut-off: %s", text)
 		}
