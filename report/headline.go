@@ -76,8 +76,12 @@ func verdictPhrase(mv *ModelVerdict) string {
 	if d.Method == "exact" {
 		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedVs(d.Diff, tol, -tol), d.Extent)
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+	few := ""
+	if d.Position == positionTooFew {
+		few = fmt.Sprintf(", on %d common test points: not judged", d.CommonPoints)
+	}
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
+		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
 }
 
 // rankingClause says one AUC model comparison in the headline, the model

@@ -516,6 +516,9 @@ func TestFewTestPoints(t *testing.T) {
 			t.Errorf("above null: %+v", an)
 		}
 	}
+	if !strings.Contains(s.Headline, "AUC of good ranged 0.798–0.966 and is undetermined (largest difference from base +0.100 on region_b50, 95% interval +0.100 to +0.100, on 3 common test points: not judged)") {
+		t.Errorf("headline: %s", s.Headline)
+	}
 	if strings.Contains(s.Headline, "null: good beats") || strings.Contains(s.Headline, "good does not beat") || !strings.Contains(s.Headline, "whether good beats "+DistanceNullName+" on base is not told") {
 		t.Errorf("headline: %s", s.Headline)
 	}
