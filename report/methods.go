@@ -201,14 +201,14 @@ func resultNumbers(r *Results) string {
 		}
 		onBase := fmt.Sprintf("not scored on %s", mv.Base)
 		if mv.BaseDefined {
-			onBase = fmt.Sprintf("%s on %s, SE %s from the test records", f3(mv.BaseValue), mv.Base, f3(baseSE(r, m, mv.Base)))
+			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
 		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, plural(sp.N),
 			onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""
 			if sc := findScore(r, m, sp.Extents[0]); sc != nil {
-				se = fmt.Sprintf(" (SE %s from the test records)", f3(sc.AUCSE))
+				se = " (" + seText(sc) + ")"
 			}
 			t = fmt.Sprintf("AUC of %s was %s on its one scored extent, %s%s, so no difference between extents could be formed", m, f3(sp.Min), sp.Extents[0], se)
 		}
@@ -256,14 +256,13 @@ func findScore(r *Results, model, extent string) *Score {
 	return nil
 }
 
-// baseSE returns the placement SE of model's AUC on extent.
-func baseSE(r *Results, model, extent string) float64 {
-	for _, sc := range r.Scores {
-		if sc.Model == model && sc.Extent == extent && sc.Scored {
-			return sc.AUCSE
-		}
+// seText is "SE 0.022 from the test records", or why there is none: the
+// placements' SE needs at least two test records (Score.AUCSE is 0 then).
+func seText(sc *Score) string {
+	if sc == nil || sc.TestPoints < 2 {
+		return "no SE with fewer than two test records"
 	}
-	return 0
+	return fmt.Sprintf("SE %s from the test records", f3(sc.AUCSE))
 }
 
 // fmtP formats a p-value for a table cell: "< 0.001" or "0.042".

@@ -743,3 +743,20 @@ func TestEffectCaptionCutoff(t *testing.T) {
 		t.Errorf("caption: %s", f.Caption)
 	}
 }
+
+// TestOneTestPointHasNoSE: with one test record the placements give no
+// SE (Score.AUCSE is 0 by convention); the results do not print "SE
+// 0.000".
+func TestOneTestPointHasNoSE(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "good" && r.Scores[i].Extent == "base" {
+			r.Scores[i].TestPoints, r.Scores[i].AUCSE = 1, 0
+		}
+	}
+	analyzed(t, r)
+	text := resultNumbers(r)
+	if !strings.Contains(text, "(0.830 on base, no SE with fewer than two test records)") {
+		t.Errorf("%s", text)
+	}
+}
