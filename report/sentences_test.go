@@ -760,3 +760,18 @@ func TestOneTestPointHasNoSE(t *testing.T) {
 		t.Errorf("%s", text)
 	}
 }
+
+// TestPageHeaderOneExtent: the page's header counts one scored extent in
+// the singular.
+func TestPageHeaderOneExtent(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base")
+	analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), "3 models · 1 extent scored</p>") {
+		t.Errorf("header: %s", regexp.MustCompile(`<p class="sub">[^<]*</p>`).Find(page))
+	}
+}
