@@ -775,3 +775,17 @@ func TestPageHeaderOneExtent(t *testing.T) {
 		t.Errorf("header: %s", regexp.MustCompile(`<p class="sub">[^<]*</p>`).Find(page))
 	}
 }
+
+// TestROCCaptionNulls: the ROC caption mentions null panels only when the
+// run has a null.
+func TestROCCaptionNulls(t *testing.T) {
+	r := analyzedSample(t)
+	if c := rocFigure(r).Caption; strings.Contains(c, "per null") {
+		t.Errorf("no null, caption: %s", c)
+	}
+	r = withNull(t)
+	analyzed(t, r)
+	if c := rocFigure(r).Caption; !strings.Contains(c, "(and per null, after the models)") {
+		t.Errorf("with a null, caption: %s", c)
+	}
+}
