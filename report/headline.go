@@ -26,25 +26,31 @@ func (s *Sensitivity) findDecomposition(key string) *Decomposition {
 	return nil
 }
 
-// areaRange formats "from A to B km²", in thousands when B >= 10,000.
+// areaRange formats "from A to B km²", in thousands when B >= 10,000,
+// each area rounded to three significant digits as fmtArea rounds it, so
+// that an area reads the same here and in the extent lists and tables
+// (3,251,635 km² is "3,250 thousand" here and "3,250,000" there).
 func areaRange(lo, hi float64) string {
 	if hi >= 1e4 {
-		thousands := func(v float64, sig int) string {
-			if v >= 1000 {
-				return groupThousands(int64(math.Round(v)))
+		thousands := func(v float64) string {
+			t := roundSig(v, 3) / 1000
+			if t >= 1000 {
+				return groupThousands(int64(math.Round(t)))
 			}
-			return trimFloat(v, sig)
+			return trimFloat(t, 3)
 		}
-		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo/1000, 2+boolInt(lo >= 1e4)), thousands(hi/1000, 3))
+		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo), thousands(hi))
 	}
 	return fmt.Sprintf("from %s to %s km²", fmtArea(lo), fmtArea(hi))
 }
 
-func boolInt(b bool) int {
-	if b {
-		return 1
+// roundSig rounds v to sig significant digits.
+func roundSig(v float64, sig int) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
 	}
-	return 0
+	mag := math.Pow(10, math.Floor(math.Log10(math.Abs(v)))-float64(sig-1))
+	return math.Round(v/mag) * mag
 }
 
 // findModelVerdict returns the verdict of metric key for model, or nil.

@@ -790,3 +790,40 @@ func TestROCCaptionNulls(t *testing.T) {
 		t.Errorf("with a null, caption: %s", c)
 	}
 }
+
+// TestAreaRangeRoundsAsTheTables: the headline's and the reply's area
+// range rounds each area as the extent lists and tables do (fmtArea):
+// the demo's whole raster was "3,252 thousand km²" in the headline and
+// "3,250,000 km²" in the methods text's list.
+func TestAreaRangeRoundsAsTheTables(t *testing.T) {
+	cases := []struct {
+		lo, hi float64
+		want   string
+	}{
+		{391788.6, 3251635.3, "from 392 to 3,250 thousand km²"},
+		{28183, 230912, "from 28.2 to 231 thousand km²"},
+		{5432, 84900, "from 5.43 to 84.9 thousand km²"},
+		{41.23, 9876, "from 41.2 to 9,880 km²"},
+	}
+	for _, c := range cases {
+		got := areaRange(c.lo, c.hi)
+		if got != c.want {
+			t.Errorf("areaRange(%v, %v) = %q, want %q", c.lo, c.hi, got, c.want)
+		}
+		if c.hi < 1e4 {
+			continue
+		}
+		// The same number as fmtArea's, in thousands.
+		for k, v := range []float64{c.lo, c.hi} {
+			f := strings.Fields(strings.TrimPrefix(got, "from "))
+			th, err := strconv.ParseFloat(strings.ReplaceAll(f[2*k], ",", ""), 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			km, _ := strconv.ParseFloat(strings.ReplaceAll(fmtArea(v), ",", ""), 64)
+			if math.Abs(th*1000-km) > 1e-6*km {
+				t.Errorf("%v: %s thousand here, %s km² in the tables", v, f[2*k], fmtArea(v))
+			}
+		}
+	}
+}
