@@ -44,7 +44,8 @@
 #     every score is unchanged);
 #   - rewritten on branch h7 (the analysis' sentences stored in
 #     results.json, under sensitivity, reworded so that each holds for the
-#     numbers it quotes; no number changed).
+#     numbers it quotes, and the headline's area range rounded to three
+#     significant digits as the tables are; no number changed).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
