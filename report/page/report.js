@@ -94,7 +94,20 @@
       var i = selE.selectedIndex + d;
       if (i >= 0 && i < selE.options.length) { selE.selectedIndex = i; draw(); }
     }
-    function fx(v, n) { return (Math.round(v * Math.pow(10, n)) / Math.pow(10, n)).toFixed(n); }
+    // fx writes v with n decimals as the report's tables do (Go's
+    // strconv): the exact value rounded, a tie to the even digit.
+    // toFixed rounds the exact value but a tie away from zero, so
+    // 0.8125 would read 0.813 here and 0.812 in the tables.
+    function fx(v, n) {
+      var s = v.toFixed(n);
+      var long = Math.abs(v).toFixed(Math.min(100, n + 60));
+      var dot = long.indexOf(".");
+      if (/^50*$/.test(long.slice(dot + 1 + n))) {
+        var cut = long.slice(0, n > 0 ? dot + 1 + n : dot);
+        if (parseInt(cut.charAt(cut.length - 1), 10) % 2 === 0) { s = (v < 0 ? "-" : "") + cut; }
+      }
+      return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s;
+    }
     function el(name, attrs, text) {
       var e = document.createElementNS("http://www.w3.org/2000/svg", name);
       for (var k in attrs) { if (Object.prototype.hasOwnProperty.call(attrs, k)) { e.setAttribute(k, attrs[k]); } }
