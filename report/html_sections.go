@@ -14,6 +14,9 @@ type analysisView struct {
 	BaseExtent      string
 	PairedResamples int
 	MinPairedPoints int
+	// MapModel is the model whose omitted test points the maps mark, ""
+	// without maps.
+	MapModel string
 	ModelVerdicts   []badge
 	Differences     htmlTable
 	Rankings        *sentencesTable
@@ -59,6 +62,9 @@ func analysisSection(r *Results) analysisView {
 		label[m.Key] = m.Label
 	}
 	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints}
+	if _, ok := mapFigure(r); ok && len(r.Models) > 0 {
+		v.MapModel = r.Models[0].Name
+	}
 	// Verdicts with every paired difference from the base extent.
 	var rows [][]cell
 	for _, mv := range s.ModelVerdicts {

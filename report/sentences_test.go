@@ -827,3 +827,23 @@ func TestAreaRangeRoundsAsTheTables(t *testing.T) {
 		}
 	}
 }
+
+// TestOmittedNoteFollowsTheMaps: the note on omitted test points says the
+// maps mark them only when the report has maps, and names the model.
+func TestOmittedNoteFollowsTheMaps(t *testing.T) {
+	for _, preview := range []bool{true, false} {
+		r := loadSample(t)
+		if !preview {
+			r.Preview = nil
+		}
+		analyzed(t, r)
+		page, err := htmlPage(r, nil, "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		says := strings.Contains(string(page), "the maps mark the test points model "+r.Models[0].Name+" omits")
+		if says != preview {
+			t.Errorf("preview %v: the page says the maps mark omitted points: %v", preview, says)
+		}
+	}
+}
