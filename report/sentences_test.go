@@ -847,3 +847,14 @@ func TestOmittedNoteFollowsTheMaps(t *testing.T) {
 		}
 	}
 }
+
+// TestRingsNoteBothSteps: the waterfall's note reads a negative step of
+// either kind; a dashed step (test records entering) adds no ring, so
+// "the ring's own AUC is below" cannot explain it.
+func TestRingsNoteBothSteps(t *testing.T) {
+	for _, w := range []string{"A solid arrow pointing left", "a dashed one, that the test records first falling inside place lower"} {
+		if !strings.Contains(ringsNote, w) {
+			t.Errorf("note lacks %q: %s", w, ringsNote)
+		}
+	}
+}
