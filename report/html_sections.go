@@ -16,15 +16,15 @@ type analysisView struct {
 	MinPairedPoints int
 	// MapModel is the model whose omitted test points the maps mark, ""
 	// without maps.
-	MapModel string
-	ModelVerdicts   []badge
-	Differences     htmlTable
-	Rankings        *sentencesTable
-	Spread          htmlTable
-	Decomposition   *decompositionView
-	Chains          *chainsView
-	Truncation      []string
-	AboveNull       *aboveNullView
+	MapModel      string
+	ModelVerdicts []badge
+	Differences   htmlTable
+	Rankings      *sentencesTable
+	Spread        htmlTable
+	Decomposition *decompositionView
+	Chains        *chainsView
+	Truncation    []string
+	AboveNull     *aboveNullView
 	// IndependenceSentence is always shown; Independence only when defined.
 	IndependenceSentence string
 	Independence         *htmlTable
