@@ -29,6 +29,7 @@ const (
 	ReadingNotAbove  = "not_above" // 95% interval includes 0
 	ReadingBelow     = "below"     // 95% interval wholly below 0
 	ReadingUndefined = "undefined" // no paired difference could be formed
+	ReadingTooFew    = "too_few"   // on fewer than MinPairedPoints common test points: not read
 )
 
 // AboveNull is how far one model stands above one null on one metric, per
@@ -123,8 +124,12 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p.Defined {
 						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
 						g.Reading = gapReading(p.Low, p.High)
+						if p.CommonPoints < MinPairedPoints {
+							g.Reading = ReadingTooFew
+						}
 						an.Defined++
 						switch g.Reading {
+						case ReadingTooFew:
 						case ReadingAbove:
 							an.Above++
 						case ReadingBelow:
@@ -176,20 +181,27 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	switch {
 	case g == nil || !g.Defined:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
+	case an.BaseReading == ReadingTooFew:
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (smallest) to %s on %s (largest); the model is above the null beyond noise on %d, within noise on %d and below on %d (a description of this family of extents).",
-			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below)
+		notTold := ""
+		if k := an.Defined - an.Above - an.NotAbove - an.Below; k > 0 {
+			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points", k, MinPairedPoints)
+		}
+		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (the smallest extent) to %s on %s (the largest); the model is above the null beyond noise on %d, within noise on %d and below on %d%s (a description of this family of extents).",
+			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below, notTold)
 	}
 	return b.String()
 }
@@ -238,7 +250,11 @@ func aboveNullHeadline(s *Sensitivity) string {
 			verb = "beats"
 		}
 		part := fmt.Sprintf("%s %s %s on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
-			signed3(g.Diff), signed3(g.Low), signed3(g.High))
+			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if an.BaseReading == ReadingTooFew {
+			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test points, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
+				signed3(g.Diff), g.CommonPoints, MinPairedPoints)
+		}
 		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			part += fmt.Sprintf("; the gap moves from %s on %s to %s on %s", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
@@ -262,7 +278,7 @@ func aboveNullRows(r *Results) [][]cell {
 		for _, g := range an.Gaps {
 			row := []cell{tc(an.Metric), tc(an.Model), tc(modelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
 			if g.Defined {
-				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signed3(g.Low)+" to "+signed3(g.High)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
 			} else {
 				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
@@ -302,7 +318,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signed3(g.Low), signed3(g.High), strings.ReplaceAll(g.Reading, "_", " ")),
+			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " ")),
 				num: g.Diff, isN: true, cls: "n"})
 		}
 		if has {
@@ -315,10 +331,12 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 // aboveNullNote explains the table.
 const aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
-	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0. " +
+	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
+	"\"too few\": fewer than 10 common test points, not read (our cut-off). " +
 	"Each row is a test of one difference against 0; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0. The partial ROC ratio and every sentence are under Analysis, Model minus null."
+	"\"below\" when it lies wholly below 0, \"too few\" (not read) on fewer than 10 common test points (our cut-off). " +
+	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -89,7 +89,7 @@ func TestAboveNullReadings(t *testing.T) {
 	if !strings.Contains(r.Sensitivity.Headline, model+" beats "+DistanceNullName+" on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
 	}
-	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval +0.060 to +0.140, against "+DistanceNullName+") is above the null beyond noise") {
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval +0.060 to +0.140) is above that of "+DistanceNullName+" beyond noise") {
 		t.Errorf("reviewer reply: %s", rv)
 	}
 	if rows := aboveNullRows(r); len(rows) != len(ok) {
@@ -118,7 +118,7 @@ func TestAboveNullReadings(t *testing.T) {
 	if !strings.Contains(r.Sensitivity.Headline, model+" does not beat "+DistanceNullName+" on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
 	}
-	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval -0.010 to +0.140, against "+DistanceNullName+") does not exceed the null's beyond noise") {
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval -0.010 to +0.140) does not exceed that of "+DistanceNullName+" beyond noise") {
 		t.Errorf("reviewer reply: %s", rv)
 	}
 }

@@ -48,7 +48,8 @@ func effectFigure(s *BatchSummary) (figure, bool) {
 		"A mark is a model's paired AUC difference from the study's base extent of largest magnitude, on the test points both extents hold; " +
 		"the bar is its 95% interval from the per-point placements."
 	if len(s.Tolerances) == 1 {
-		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s; a bar wholly outside it makes the model's AUC extent-sensitive in that study.", fmtG(s.Tolerances[0]))
+		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s; a bar wholly outside it makes the model's AUC extent-sensitive in that study, "+
+			"unless it rests on fewer than %d common test points (not judged).", fmtG(s.Tolerances[0]), MinPairedPoints)
 	}
 	if !labels {
 		f.Caption += " There are too many studies to name each row; summary.csv lists them."

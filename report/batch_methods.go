@@ -24,7 +24,8 @@ const delong1988 = "DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Com
 const ExtentSensitiveDefinition = "Within each study, and for each model, AUC on every extent was compared with AUC on the study's base extent " +
 	"by the paired difference on the test points both extents hold, with a 95% interval from the per-point placements (DeLong et al. 1988). " +
 	"A model's AUC is extent-sensitive when at least one of these intervals lies wholly beyond ±T, robust when every interval lies within ±T, " +
-	"and undetermined otherwise (too few test points to tell, or no difference could be formed); T is the study's equivalence tolerance. " +
+	"and undetermined otherwise (too few test points to tell, or no difference could be formed); T is the study's equivalence tolerance, " +
+	"and a difference on fewer than 10 common test points is not judged (our cut-off). " +
 	"A study counts as extent-sensitive when AUC is extent-sensitive for at least one of its models, robust when it is robust for every model, " +
 	"and undetermined otherwise. These are the verdicts each study's own analysis gives (results.json, sensitivity.verdicts); " +
 	"the counts below add them up, and no test across studies is made."
@@ -160,7 +161,7 @@ func undefinedTail(n int) string {
 	if n <= 0 {
 		return ""
 	}
-	return fmt.Sprintf("; on %d the difference could not be formed", n)
+	return fmt.Sprintf("; on %d the difference could not be formed or rests on fewer than %d test points (not read)", n, MinPairedPoints)
 }
 
 // ies is the plural ending of "study".

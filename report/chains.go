@@ -191,12 +191,18 @@ func chainSentence(cs *ChainSummary) string {
 	if hasTP && st.Kind == StepRing {
 		tail = fmt.Sprintf(" Test points that enter along the chain account for %s.", pct(tp))
 	}
-	if st.Kind == StepTestPoints {
-		return fmt.Sprintf("%s; %s of the %s comes from test points that enter with %s, judged against the background of %s.",
-			head, pct(st.Share), word, st.Outer, st.Inner)
+	// The step of largest share may go against the chain's change (steps
+	// of both signs): "-500% of the gain comes from" would say nothing.
+	comes := fmt.Sprintf("%s of the %s comes from", pct(st.Share), word)
+	if st.Share < 0 {
+		comes = fmt.Sprintf("the largest step goes against the %s (%s of it):", word, pct(st.Share))
 	}
-	s := fmt.Sprintf("%s; %s of the %s comes from the ring %s minus %s (%s km²)",
-		head, pct(st.Share), word, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
+	if st.Kind == StepTestPoints {
+		return fmt.Sprintf("%s; %s test points that enter with %s, judged against the background of %s.",
+			head, comes, st.Outer, st.Inner)
+	}
+	s := fmt.Sprintf("%s; %s the ring %s minus %s (%s km²)",
+		head, comes, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
 	if cs.Slope.Defined {
 		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signed3(cs.Slope.PerDoubling), cs.Slope.N)
 	}
@@ -212,11 +218,15 @@ func chainSentence(cs *ChainSummary) string {
 // easier or harder than chance.
 func ringClause(st ChainStep) string {
 	s := fmt.Sprintf("whose AUC is %s against %s inside %s: ", f3(st.AUCRing), f3(st.AUCInner), st.Inner)
+	// Whether adding the ring raises or lowers the score follows from the
+	// ring's AUC against the inner one alone; below 0.5 says more.
 	switch {
-	case st.AUCRing < 0.5:
-		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
+	case st.AUCRing > st.AUCInner && st.AUCRing < 0.5:
+		return s + "the model still scores the ring's cells above the test points more often than not, but less often than the inner cells, so adding the ring raises the score."
 	case st.AUCRing > st.AUCInner:
 		return s + "the test points outrank the ring's cells more often than the inner cells, so adding the ring raises the score although the ranking near the records is unchanged."
+	case st.AUCRing < st.AUCInner && st.AUCRing < 0.5:
+		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
 	case st.AUCRing < st.AUCInner:
 		return s + "the ring's cells look more like the presences to the model than the inner cells do, so adding it lowers the score."
 	}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 
 	"areasweep/extent/vocab"
 	"areasweep/metrics"
@@ -77,18 +78,18 @@ func lastSegment(c Curve) (TailJump, bool) {
 
 func (a *analysis) truncationSentence(t *TruncationCheck) string {
 	if !t.Flag {
-		return fmt.Sprintf("Model %s shows no sign of truncated predictions: its minimum value covers %s of the valid area, and no ROC curve ends in a tie of test points with more than %s of the area axis.",
-			t.Model, pctFine(t.FloorShare), fmtG(TailJumpFlag))
+		return fmt.Sprintf("Model %s shows no sign of truncated predictions by our cut-offs: its minimum value covers %s of the valid area (flagged from %s), and no ROC curve ends in a tie of test points with more than %s of the area axis.",
+			t.Model, pctVs(t.FloorShare, FloorShareFlag), pct(FloorShareFlag), fmtG(TailJumpFlag))
 	}
-	s := fmt.Sprintf("Model %s looks truncated:", t.Model)
+	s := fmt.Sprintf("Model %s looks truncated by our cut-offs:", t.Model)
 	if t.FloorFlag {
-		s += fmt.Sprintf(" its minimum value covers %s of the valid area", pctFine(t.FloorShare))
+		s += fmt.Sprintf(" its minimum value covers %s of the valid area (flagged from %s)", pctVs(t.FloorShare, FloorShareFlag), pct(FloorShareFlag))
 		if len(t.Tails) > 0 {
 			s += " and"
 		}
 	}
 	if len(t.Tails) > 0 {
-		s += fmt.Sprintf(" on %d extent(s) test points share its lowest value with up to %s of the area axis", len(t.Tails), f3(t.MaxJump))
+		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), plural(len(t.Tails)), f3(t.MaxJump), fmtG(TailJumpFlag))
 		s += ". Full AUC gives those test points half credit against the whole tied area"
 	}
 	e := "E"
@@ -109,6 +110,22 @@ func pctFine(v float64) string {
 		return trimFloat(100*v, 1) + "%"
 	}
 	return pct(v)
+}
+
+// pctVs formats a share like pctFine, with more decimals when a whole
+// percentage would print it as the cut-off it is compared with but is not
+// (24.6% against a 25% warning level, not "25%").
+func pctVs(v, cut float64) string {
+	s := pctFine(v)
+	if v == cut || s != pct(cut) {
+		return s
+	}
+	for dec := 1; dec <= 10; dec++ {
+		if s = strconv.FormatFloat(100*v, 'f', dec, 64) + "%"; s != strconv.FormatFloat(100*cut, 'f', dec, 64)+"%" {
+			return s
+		}
+	}
+	return strconv.FormatFloat(100*v, 'g', -1, 64) + "%"
 }
 
 // independence summarises the test-to-training distances.
@@ -159,10 +176,13 @@ func (a *analysis) independence() Independence {
 	ind.NearShare = float64(ind.NearCount) / float64(len(d))
 	ind.Warn = ind.NearKm > 0 && ind.NearShare > NearShareWarn
 	ind.Sentence = fmt.Sprintf("The %d test points lie %s–%s km from the nearest training point (median %s km); %s lie within %g cell widths (%s km%s) of one",
-		len(d), trimFloat(ind.Min, 3), trimFloat(ind.Max, 3), trimFloat(ind.Median, 3), pct(ind.NearShare), NearCells, trimFloat(ind.NearKm, 3), how)
-	if ind.Warn {
+		len(d), trimFloat(ind.Min, 3), trimFloat(ind.Max, 3), trimFloat(ind.Median, 3), pctVs(ind.NearShare, NearShareWarn), NearCells, trimFloat(ind.NearKm, 3), how)
+	switch {
+	case ind.Warn:
 		ind.Sentence += fmt.Sprintf(", more than our %s warning level: a random split under spatial autocorrelation inflates every score.", pct(NearShareWarn))
-	} else {
+	case ind.NearShare == NearShareWarn:
+		ind.Sentence += fmt.Sprintf(", at our %s warning level (we warn above it).", pct(NearShareWarn))
+	default:
 		ind.Sentence += fmt.Sprintf(", below our %s warning level.", pct(NearShareWarn))
 	}
 	return ind

@@ -350,3 +350,49 @@ func copyFile(t *testing.T, from, to string) {
 		t.Errorf("artefact: %v", err)
 	}
 }
+
+// TestExplorerRoundsAsTheTables: the extent explorer writes an AUC with
+// the digits the tables and sentences give it (Go's rounding: a tie to
+// the even digit). An AUC of exactly 0.8125, which a small grid of equal
+// cells gives readily, read 0.813 in the explorer and 0.812 in the
+// tables.
+func TestExplorerRoundsAsTheTables(t *testing.T) {
+	bin := findChromium()
+	if bin == "" {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
+		}
+		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
+	}
+	r := loadSample(t)
+	model, ext := r.Models[0].Name, "base"
+	for i := range r.Scores {
+		if r.Scores[i].Model == model && r.Scores[i].Extent == ext {
+			r.Scores[i].AUC = 0.8125 // exactly halfway between 0.812 and 0.813
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	want := f3(0.8125)
+	if want != "0.812" {
+		t.Fatalf("f3(0.8125) = %s", want)
+	}
+	page := "file://" + filepath.Join(dir, "report.html") + "#extent=" + url.QueryEscape(ext) + "&model=" + url.QueryEscape(model)
+	dom, _ := runChromium(t, bin, chromiumArgs(t.TempDir(), "--virtual-time-budget=5000", "--dump-dom", page))
+	d := string(dom)
+	teach := regexp.MustCompile(`(?s)<svg id="fig-teach"[^>]*>(.*?)</svg>`).FindStringSubmatch(d)
+	if teach == nil || !strings.Contains(teach[1], "AUC "+want+"<") {
+		t.Errorf("explorer's figure does not read AUC %s", want)
+	}
+	if !strings.Contains(d, `class="current">`+ext+": "+want+"<") {
+		t.Errorf("explorer's steps do not read %s: %s", want, regexp.MustCompile(`class="current">[^<]*`).FindString(d))
+	}
+	if !strings.Contains(d, "has AUC "+want+" ") {
+		t.Errorf("explorer's sentence does not read %s: %s", want, regexp.MustCompile(`<p id="teach-sentence">[^<]*`).FindString(d))
+	}
+}

@@ -40,7 +40,7 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 	}
 	if J == 0 {
 		d.Note = "no extent is scored for every model"
-		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", m.Label)
+		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", upperFirst(m.Label))
 		return d
 	}
 
@@ -76,7 +76,10 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 
 	if J < 2 || I < 2 {
 		d.Note = "fewer than two extents scored for every model"
-		d.Sentence = fmt.Sprintf("%s: only %d extent(s) are scored for every model, too few to split extent from model effects.", m.Label, J)
+		d.Sentence = fmt.Sprintf("%s: only %d extent is scored for every model, too few to split extent from model effects.", upperFirst(m.Label), J)
+		if I < 2 {
+			d.Sentence = fmt.Sprintf("%s: only one model, so extent and model effects cannot be split.", upperFirst(m.Label))
+		}
 		return d
 	}
 	// Sums of squares.

@@ -21,9 +21,10 @@ type metricPoint struct {
 }
 
 // metricPoints returns model's values of metric m on the scored extents,
-// by area. AUC carries plus and minus its bootstrap SD; partial ROC is the
-// mean of the bootstrap resamples with their 2.5th to 97.5th percentiles,
-// so that point and bar come from the same resamples.
+// by area. AUC carries plus and minus its SD over the run's full-size
+// paired resamples (Score.AUCBootSD); partial ROC is the mean of the
+// published half-size bootstrap resamples with their 2.5th to 97.5th
+// percentiles, so that point and bar come from the same resamples.
 func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 	scored := map[string]bool{}
 	for _, id := range r.Sensitivity.ScoredExtents {
@@ -35,7 +36,7 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 		if sc.Model != model || !sc.Scored || !scored[sc.Extent] || sc.AreaKm2 <= 0 {
 			continue
 		}
-		if p, ok := metricPointOf(m, sc, r.Settings.Iterations); ok {
+		if p, ok := metricPointOf(m, sc, r.Settings.PairedResamples); ok {
 			p.area = sc.AreaKm2
 			pts = append(pts, p)
 		}
@@ -44,11 +45,13 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 	return pts
 }
 
-func metricPointOf(m MetricInfo, sc *Score, iterations int) (metricPoint, bool) {
+// metricPointOf is sc's point of metric m; paired is the number of
+// full-size paired resamples that AUC's bar (Score.AUCBootSD) comes from.
+func metricPointOf(m MetricInfo, sc *Score, paired int) (metricPoint, bool) {
 	switch m.Kind {
 	case MetricAUC:
 		p := metricPoint{v: sc.AUC}
-		if iterations >= 2 {
+		if paired >= 2 {
 			p.lo, p.hi, p.bar = sc.AUC-sc.AUCBootSD, sc.AUC+sc.AUCBootSD, true
 		}
 		return p, true
@@ -291,12 +294,18 @@ func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
 		"every score uses the test records inside that extent (counts in the Extents table). "
-	if st.Iterations >= 2 {
-		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d bootstrap resamples of %s%% of the test records, "+
-			"wider than the uncertainty of the full-sample AUC drawn as the point. "+
-			"Partial ROC: the point is the mean ratio of those %d resamples and the bar spans their 2.5th to 97.5th percentiles; "+
+	if st.PairedResamples >= 2 {
+		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d full-size paired resamples of the test records inside the extent, "+
+			"which estimates the same uncertainty as the AUC's standard error (Scores table). ", st.PairedResamples)
+	}
+	if st.Iterations >= 1 {
+		bar := ""
+		if st.Iterations >= 2 {
+			bar = " and the bar spans their 2.5th to 97.5th percentiles"
+		}
+		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (the published bootstrap)%s; "+
 			"the full-sample ratio is in the tables. ",
-			st.Iterations, fmtG(100*st.ResampleFraction), st.Iterations)
+			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bar)
 	}
 	c += "Omission and predicted area at a threshold have no bar: the threshold comes from the training records alone. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +

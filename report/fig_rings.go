@@ -433,7 +433,8 @@ func alignData(p *plot.Plot, c *draw.Canvas, x0, x1 vg.Length) {
 // ringsNote says how to read the waterfall, in particular a negative step.
 const ringsNote = "How to read a step: each arrow moves the AUC from one extent of the chain to the next larger one. " +
 	"The new ring has its own AUC (in the columns on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
-	"An arrow pointing left (a negative step) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records. " +
+	"A solid arrow pointing left (a negative step) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records; " +
+	"a dashed one, that the test records first falling inside place lower, on average, against the inner extent's background than the others. " +
 	"The steps add up to the change from the first to the last extent, so when steps go both ways one step can exceed the whole change (a share above 100%) while another is negative."
 
 // sameSteps reports whether two chain summaries have the same steps.

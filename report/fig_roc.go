@@ -75,10 +75,14 @@ func rocFigure(r *Results) figure {
 		f.W = oneColumn
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
+	perNull := ""
+	if len(nulls(r)) > 0 {
+		perNull = " (and per null, after the models)"
+	}
 	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
-		"predicted present (y), one panel per model (and per null, after the models), one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
+		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
-		"The selector under the figures names each curve.", fmtG(e))
+		"The selector under the figures names each curve.", perNull, fmtG(e))
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
 	band := color.Gray{Y: 225}
 	var items []legendItem

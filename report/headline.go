@@ -26,25 +26,31 @@ func (s *Sensitivity) findDecomposition(key string) *Decomposition {
 	return nil
 }
 
-// areaRange formats "from A to B km²", in thousands when B >= 10,000.
+// areaRange formats "from A to B km²", in thousands when B >= 10,000,
+// each area rounded to three significant digits as fmtArea rounds it, so
+// that an area reads the same here and in the extent lists and tables
+// (3,251,635 km² is "3,250 thousand" here and "3,250,000" there).
 func areaRange(lo, hi float64) string {
 	if hi >= 1e4 {
-		thousands := func(v float64, sig int) string {
-			if v >= 1000 {
-				return groupThousands(int64(math.Round(v)))
+		thousands := func(v float64) string {
+			t := roundSig(v, 3) / 1000
+			if t >= 1000 {
+				return groupThousands(int64(math.Round(t)))
 			}
-			return trimFloat(v, sig)
+			return trimFloat(t, 3)
 		}
-		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo/1000, 2+boolInt(lo >= 1e4)), thousands(hi/1000, 3))
+		return fmt.Sprintf("from %s to %s thousand km²", thousands(lo), thousands(hi))
 	}
 	return fmt.Sprintf("from %s to %s km²", fmtArea(lo), fmtArea(hi))
 }
 
-func boolInt(b bool) int {
-	if b {
-		return 1
+// roundSig rounds v to sig significant digits.
+func roundSig(v float64, sig int) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
 	}
-	return 0
+	mag := math.Pow(10, math.Floor(math.Log10(math.Abs(v)))-float64(sig-1))
+	return math.Round(v/mag) * mag
 }
 
 // findModelVerdict returns the verdict of metric key for model, or nil.
@@ -61,16 +67,72 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 // ...)" for a model verdict.
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
-		if !mv.BaseDefined {
+		switch {
+		case len(mv.Diffs) == 0 && !mv.BaseDefined:
+			return string(mv.Verdict) + " (not scored on " + mv.Base + ")"
+		case len(mv.Diffs) == 0:
+			return string(mv.Verdict) + " (scored on " + mv.Base + " only)"
+		case !mv.BaseDefined:
 			return string(mv.Verdict) + " (undefined on " + mv.Base + ")"
 		}
 		return string(mv.Verdict) + " (no difference could be formed)"
 	}
 	d := mv.Diffs[mv.Largest]
+	tol := mv.Tolerance
 	if d.Method == "exact" {
-		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent)
+		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedVs(d.Diff, tol, -tol), d.Extent)
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, signed3(d.Low), signed3(d.High))
+	few := ""
+	if d.Position == positionTooFew {
+		few = fmt.Sprintf(", on %d common test points: not judged", d.CommonPoints)
+	}
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
+		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
+}
+
+// rankingClause says one AUC model comparison in the headline, the model
+// that is better beyond noise on more extents first: "A is better than B
+// beyond noise on 13 of 13 extents", with "and worse on k" when the other
+// way round holds somewhere, or "A and B differ beyond noise on none of
+// n extents".
+func rankingClause(rk ModelRanking) string {
+	a, b, better, worse := rk.Model, rk.Other, rk.Better, rk.Worse
+	if worse > better {
+		a, b, better, worse = b, a, worse, better
+	}
+	n := rk.Extents
+	if better == 0 {
+		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, plural(n))
+	}
+	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d extent%s", a, b, better, n, plural(n))
+	if worse > 0 {
+		out += fmt.Sprintf(" and worse on %d", worse)
+	}
+	return out
+}
+
+// verdictsByJudgement says the verdicts of mvs grouped by judgement, in
+// the order the judgements first appear: "extent-sensitive for a and b
+// and undetermined for c".
+func verdictsByJudgement(mvs []ModelVerdict) string {
+	var order []Judgement
+	models := map[Judgement][]string{}
+	for _, mv := range mvs {
+		if _, ok := models[mv.Verdict]; !ok {
+			order = append(order, mv.Verdict)
+		}
+		models[mv.Verdict] = append(models[mv.Verdict], mv.Model)
+	}
+	var parts []string
+	several := false
+	for _, j := range order {
+		parts = append(parts, fmt.Sprintf("%s for %s", j, joinList(models[j])))
+		several = several || len(models[j]) > 1
+	}
+	if several && len(parts) > 1 {
+		return strings.Join(parts, "; ")
+	}
+	return joinList(parts)
 }
 
 // testPointText says how many test points the extents hold.
@@ -103,41 +165,60 @@ func headline(a *analysis, s *Sensitivity) string {
 		}
 	}
 	var b strings.Builder
-	fmt.Fprintf(&b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
-	var parts []string
-	tol := ""
-	for _, m := range a.models {
-		sp := s.findSpread("auc", m)
-		mv := s.findModelVerdict("auc", m)
-		if sp == nil || sp.N == 0 || mv == nil {
-			continue
-		}
-		tol = fmtG(mv.Tolerance)
-		parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
-	}
-	if len(parts) == 0 {
-		b.WriteString("no model has an AUC.")
-		return b.String()
-	}
-	b.WriteString(strings.Join(parts, "; "))
-	fmt.Fprintf(&b, ", against our tolerance of ±%s.", tol)
-	if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
-		key := MetricKeyPartialROC(a.r.Settings.E[0])
-		var pr []string
+	if len(s.ScoredExtents) == 1 {
+		// One extent: there is nothing to compare it with, so no verdict.
+		fmt.Fprintf(&b, "Only one evaluation extent, %s (%s km², %s), could be scored, so no score can be compared across extents", s.ScoredExtents[0],
+			fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each"))
+		var parts []string
 		for _, m := range a.models {
-			if mv := s.findModelVerdict(key, m); mv != nil {
-				pr = append(pr, fmt.Sprintf("%s for %s", mv.Verdict, m))
+			if sp := s.findSpread("auc", m); sp != nil && sp.N > 0 {
+				parts = append(parts, fmt.Sprintf("%s %s", m, f3(sp.Min)))
 			}
 		}
-		if len(pr) > 0 {
-			fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), joinList(pr))
+		if len(parts) > 0 {
+			fmt.Fprintf(&b, "; AUC there: %s", strings.Join(parts, ", "))
+		}
+		b.WriteString(".")
+	} else {
+		fmt.Fprintf(&b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
+		var parts []string
+		against := ""
+		for _, m := range a.models {
+			sp := s.findSpread("auc", m)
+			mv := s.findModelVerdict("auc", m)
+			if sp == nil || sp.N == 0 || mv == nil {
+				continue
+			}
+			against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
+			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
+		}
+		if len(parts) == 0 {
+			b.WriteString("no model has an AUC.")
+			return b.String()
+		}
+		b.WriteString(strings.Join(parts, "; "))
+		fmt.Fprintf(&b, ", against %s.", against)
+		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
+			key := MetricKeyPartialROC(a.r.Settings.E[0])
+			var mvs []ModelVerdict
+			for _, m := range a.models {
+				if mv := s.findModelVerdict(key, m); mv != nil {
+					mvs = append(mvs, *mv)
+				}
+			}
+			if pr := verdictsByJudgement(mvs); pr != "" {
+				fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
+			}
 		}
 	}
+	var ranks []string
 	for _, r := range s.Rankings {
 		if r.Metric == "auc" && r.Extents > 0 {
-			fmt.Fprintf(&b, " By AUC, %s is better than %s beyond noise on %d of %d extents.", r.Model, r.Other, r.Better, r.Extents)
-			break
+			ranks = append(ranks, rankingClause(r))
 		}
+	}
+	if len(ranks) > 0 {
+		fmt.Fprintf(&b, " By AUC, %s.", strings.Join(ranks, "; "))
 	}
 	b.WriteString(aboveNullHeadline(s))
 	if s.Independence.Warn {

@@ -13,14 +13,18 @@ import (
 type analysisView struct {
 	BaseExtent      string
 	PairedResamples int
-	ModelVerdicts   []badge
-	Differences     htmlTable
-	Rankings        *sentencesTable
-	Spread          htmlTable
-	Decomposition   *decompositionView
-	Chains          *chainsView
-	Truncation      []string
-	AboveNull       *aboveNullView
+	MinPairedPoints int
+	// MapModel is the model whose omitted test points the maps mark, ""
+	// without maps.
+	MapModel      string
+	ModelVerdicts []badge
+	Differences   htmlTable
+	Rankings      *sentencesTable
+	Spread        htmlTable
+	Decomposition *decompositionView
+	Chains        *chainsView
+	Truncation    []string
+	AboveNull     *aboveNullView
 	// IndependenceSentence is always shown; Independence only when defined.
 	IndependenceSentence string
 	Independence         *htmlTable
@@ -57,7 +61,10 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints}
+	if _, ok := mapFigure(r); ok && len(r.Models) > 0 {
+		v.MapModel = r.Models[0].Name
+	}
 	// Verdicts with every paired difference from the base extent.
 	var rows [][]cell
 	for _, mv := range s.ModelVerdicts {
@@ -177,7 +184,7 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 		for _, rk := range er.Ranks {
 			row = append(row, nc(rk, 1))
 		}
-		row = append(row, tc(strings.Join(er.Order, " > ")), tc(yesNo(er.DiffersFromBase)))
+		row = append(row, tc(orderText(d.Models, er.Ranks)), tc(yesNo(er.DiffersFromBase)))
 		rows = append(rows, row)
 	}
 	head := []string{"extent"}
@@ -222,6 +229,29 @@ func chainsSection(s *Sensitivity) *chainsView {
 	}
 	v.Slopes = table("tbl-chain-slopes", []string{"nested chain", "model", "members", "AUC change per doubling of area", "r²"}, rows)
 	return v
+}
+
+// orderText writes the models best first by their ranks: "a > b = c",
+// with "=" between models of the same (mid-)rank, which tie on the point
+// estimate (ties in model order).
+func orderText(models []string, ranks []float64) string {
+	order := orderByRank(models, ranks)
+	rank := map[string]float64{}
+	for i, m := range models {
+		rank[m] = ranks[i]
+	}
+	var b strings.Builder
+	for i, m := range order {
+		if i > 0 {
+			if rank[m] == rank[order[i-1]] {
+				b.WriteString(" = ")
+			} else {
+				b.WriteString(" > ")
+			}
+		}
+		b.WriteString(m)
+	}
+	return b.String()
 }
 
 func yesNo(b bool) string {
@@ -290,7 +320,7 @@ func scoresSection(r *Results) scoresView {
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), nc(sc.AUCSE, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), nc(sc.AUCBootSD, 4))
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), defNum(sc.AUCSE, sc.TestPoints >= 2, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), defNum(sc.AUCBootSD, sc.TestPoints >= 2, 4))
 		if sc.Boyce != nil {
 			row = append(row, nc(sc.Boyce.Index, 3))
 		} else {

@@ -62,8 +62,8 @@ func methodsText(r *Results) string {
 		}
 		first = false
 	}
-	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extents built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), plural(len(models)), joinList(models), len(fam), sw, joinList(fam))
+	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
+		len(models), plural(len(models)), joinList(models), len(fam), plural(len(fam)), sw, joinList(fam))
 	if len(s.SkippedExtents) > 0 {
 		var sk []string
 		for _, e := range s.SkippedExtents {
@@ -96,16 +96,26 @@ func methodsText(r *Results) string {
 	b.WriteString(".")
 	if s.TestPointsVary {
 		var fewer []string
+		all := 0
 		for i, id := range s.ScoredExtents {
-			if i < len(s.TestPoints) && s.TestPoints[i] != pc.Test {
+			if i >= len(s.TestPoints) {
+				continue
+			}
+			if s.TestPoints[i] == pc.Test {
+				all++
+			} else {
 				fewer = append(fewer, fmt.Sprintf("%s %d", id, s.TestPoints[i]))
 			}
 		}
-		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %d on most, %s.", pc.Test, joinList(fewer))
+		holdAll := ""
+		if all > 0 {
+			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
+		}
+		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, joinList(fewer))
 	}
 	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from the published bootstrap of %d resamples of %s%% of the test records (seed %d; p is not resolved below 1/%d)",
+		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from the published bootstrap of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
 			fmtList(st.E, ""), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
@@ -125,9 +135,12 @@ func methodsText(r *Results) string {
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
 	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
-	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise.",
-		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
-	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents and the slope of AUC against log2 of the area along each nested chain")
+	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records was not judged.",
+		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
+	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
+	if len(s.Chains) > 0 {
+		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
+	}
 	if len(models) >= 2 {
 		b.WriteString(", the split of the sums of squares of the models × extents table (a property of the extents chosen) and Kendall's W of the model order (Legendre 2005); models were compared by their paired differences on each extent")
 	}
@@ -143,7 +156,7 @@ func methodsText(r *Results) string {
 	b.WriteString("\n\n")
 	b.WriteString("## References\n\n")
 	refs := slices.Clone(references)
-	if len(nulls(r)) > 0 {
+	if strings.Contains(b.String(), "Hijmans 2012") {
 		refs = append(refs, hijmans2012)
 		slices.Sort(refs)
 	}
@@ -161,7 +174,8 @@ func plural(n int) string {
 }
 
 // references are the methods cited in methods.md.
-// hijmans2012 is cited when the report holds a null.
+// hijmans2012 is listed when the text cites it (the distance-only null and
+// the sorting bias; a null of the user's alone does not).
 const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distribution models: removing spatial sorting bias and calibration with a null model. Ecology 93: 679-688."
 
 var references = []string{
@@ -185,8 +199,19 @@ func resultNumbers(r *Results) string {
 		if sp == nil || sp.N == 0 || mv == nil {
 			continue
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extents (%s on %s, SE %s from the test records) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N,
-			f3(mv.BaseValue), mv.Base, f3(baseSE(r, m, mv.Base)), verdictPhrase(mv))
+		onBase := fmt.Sprintf("not scored on %s", mv.Base)
+		if mv.BaseDefined {
+			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
+		}
+		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, plural(sp.N),
+			onBase, verdictPhrase(mv))
+		if sp.N == 1 {
+			se := ""
+			if sc := findScore(r, m, sp.Extents[0]); sc != nil {
+				se = " (" + seText(sc) + ")"
+			}
+			t = fmt.Sprintf("AUC of %s was %s on its one scored extent, %s%s, so no difference between extents could be formed", m, f3(sp.Min), sp.Extents[0], se)
+		}
 		if len(r.Settings.E) > 0 {
 			if pv := s.findModelVerdict(MetricKeyPartialROC(r.Settings.E[0]), m); pv != nil {
 				t += fmt.Sprintf("; its partial ROC ratio at E = %s was %s", fmtG(r.Settings.E[0]), verdictPhrase(pv))
@@ -200,7 +225,7 @@ func resultNumbers(r *Results) string {
 	}
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.Extents > 0 {
-			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extents, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse, rk.WithinNoise)
+			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
 	}
 	if s.Independence.Defined {
@@ -211,14 +236,33 @@ func resultNumbers(r *Results) string {
 	return strings.TrimSpace(out)
 }
 
-// baseSE returns the placement SE of model's AUC on extent.
-func baseSE(r *Results, model, extent string) float64 {
-	for _, sc := range r.Scores {
-		if sc.Model == model && sc.Extent == extent && sc.Scored {
-			return sc.AUCSE
+// defaultsNote says, inside the list of tolerances, that they are
+// areasweep's defaults when all of them are: not a published standard.
+func defaultsNote(st Settings) string {
+	if st.ToleranceAUC == DefaultToleranceAUC && st.TolerancePartialROC == DefaultTolerancePartialROC &&
+		st.ToleranceOmission == DefaultToleranceOmission && st.ToleranceBoyce == DefaultToleranceBoyce {
+		return "; areasweep's defaults, not a published standard"
+	}
+	return ""
+}
+
+// findScore returns the scored Score of model on extent, or nil.
+func findScore(r *Results, model, extent string) *Score {
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == model && sc.Extent == extent && sc.Scored {
+			return sc
 		}
 	}
-	return 0
+	return nil
+}
+
+// seText is "SE 0.022 from the test records", or why there is none: the
+// placements' SE needs at least two test records (Score.AUCSE is 0 then).
+func seText(sc *Score) string {
+	if sc == nil || sc.TestPoints < 2 {
+		return "no SE with fewer than two test records"
+	}
+	return fmt.Sprintf("SE %s from the test records", f3(sc.AUCSE))
 }
 
 // fmtP formats a p-value for a table cell: "< 0.001" or "0.042".
@@ -250,7 +294,7 @@ func reviewerText(r *Results) string {
 	var b strings.Builder
 	n := len(s.ScoredExtents)
 	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. ")
-	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d alternative evaluation extents", n)
+	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, plural(n))
 	if n > 0 {
 		lo, hi := -1.0, -1.0
 		for _, e := range r.Extents {
@@ -265,7 +309,12 @@ func reviewerText(r *Results) string {
 				}
 			}
 		}
-		fmt.Fprintf(&b, " spanning %s–%s km²", fmtArea(lo), fmtArea(hi))
+		if n == 1 {
+			fmt.Fprintf(&b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
+		} else {
+			// The headline's rounding, so that the same areas read the same.
+			fmt.Fprintf(&b, " (the base extent, %s, and %d other%s) %s", s.BaseExtent, n-1, plural(n-1), areaRange(lo, hi))
+		}
 	}
 	if s.TestPointsVary {
 		lo, hi := s.TestPoints[0], s.TestPoints[0]
@@ -275,18 +324,32 @@ func reviewerText(r *Results) string {
 		fmt.Fprintf(&b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
 	}
 	b.WriteString(". ")
-	fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we fixed in advance (AUC ±%s, partial ROC ratio ±%s, omission ±%s, Boyce index ±%s). ",
-		fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce))
+	if n != 1 {
+		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
+			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
+	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
+		label := v.Label
+		for _, m := range s.Metrics {
+			if m.Key == v.Metric {
+				label = metricPhrase(m) // no comma inside a list
+			}
+		}
 		switch v.Verdict {
 		case JudgementRobust:
-			robust = append(robust, v.Label)
+			robust = append(robust, label)
 		case JudgementSensitive:
-			sensitive = append(sensitive, v.Label)
+			sensitive = append(sensitive, label)
 		default:
-			undetermined = append(undetermined, v.Label)
+			undetermined = append(undetermined, label)
 		}
+	}
+	if n == 1 {
+		// Nothing to compare: the verdicts are undetermined for want of a
+		// second extent, not of test records.
+		robust, sensitive, undetermined = nil, nil, nil
+		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
 	if len(sensitive) > 0 {
 		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
@@ -299,7 +362,7 @@ func reviewerText(r *Results) string {
 	}
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extents and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.Worse)
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse)
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -312,33 +375,69 @@ func reviewerText(r *Results) string {
 
 // reviewerNullText tells the reviewer, for AUC on the base extent, whether
 // each model beats each null scored on the same test records (the paired
-// test of Sensitivity.AboveNull), or "" when no null was scored.
+// test of Sensitivity.AboveNull), or "" when no null was scored. What a
+// model that does not beat a null lacks depends on the null: the
+// distance-only null knows where the training records are, a null of the
+// user's is described by its name only.
 func reviewerNullText(s *Sensitivity) string {
-	var beat, not []string
 	gaps := s.baseAUCGaps()
 	if len(gaps) == 0 {
 		return ""
 	}
+	type byNull struct {
+		name, kind string
+		beat, not  []string
+		few        []string
+	}
+	var ns []*byNull
+	index := map[string]*byNull{}
 	for _, bg := range gaps {
 		an, g := bg.an, bg.g
-		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s, against %s)", an.Model, signed3(g.Diff), signed3(g.Low), signed3(g.High), an.Null)
+		n := index[an.Null]
+		if n == nil {
+			n = &byNull{name: an.Null, kind: an.NullKind}
+			index[an.Null] = n
+			ns = append(ns, n)
+		}
+		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if an.BaseReading == ReadingTooFew {
+			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
+			continue
+		}
 		if an.BaseReading == ReadingAbove {
-			beat = append(beat, part)
+			n.beat = append(n.beat, part)
 		} else {
-			not = append(not, part)
+			n.not = append(n.not, part)
+		}
+	}
+	var what []string
+	for _, n := range ns {
+		if n.kind == NullDistance {
+			what = append(what, fmt.Sprintf("a null that knows only where the training records are (%s: minus the distance to the nearest one; Hijmans 2012)", n.name))
+		} else {
+			what = append(what, fmt.Sprintf("the null %s", n.name))
 		}
 	}
 	var b strings.Builder
-	b.WriteString("We also scored a null that knows only where the training records are (minus the distance to the nearest one; Hijmans 2012) on the same extents and test records. ")
-	if len(beat) > 0 {
-		fmt.Fprintf(&b, "On the base extent the AUC of %s is above the null beyond noise. ", joinList(beat))
-	}
-	if len(not) > 0 {
-		verb := "does"
-		if len(not) > 1 {
-			verb = "do"
+	fmt.Fprintf(&b, "We also scored %s on the same extents and test records. ", joinList(what))
+	for _, n := range ns {
+		if len(n.beat) > 0 {
+			fmt.Fprintf(&b, "On the base extent the AUC of %s is above that of %s beyond noise. ", joinList(n.beat), n.name)
 		}
-		fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed the null's beyond noise, so on that extent AUC shows no skill beyond the geography of the records. ", joinList(not), verb)
+		if len(n.not) > 0 {
+			verb := "does"
+			if len(n.not) > 1 {
+				verb = "do"
+			}
+			lacks := "what " + n.name + " holds"
+			if n.kind == NullDistance {
+				lacks = "the geography of the records"
+			}
+			fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed that of %s beyond noise, so on that extent AUC shows no skill beyond %s. ", joinList(n.not), verb, n.name, lacks)
+		}
+		if len(n.few) > 0 {
+			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we judge no difference on fewer than %d). ", joinList(n.few), n.name, MinPairedPoints)
+		}
 	}
 	return b.String()
 }

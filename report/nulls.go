@@ -127,9 +127,17 @@ func nullSentences(r *Results) string {
 		if n.NullKind == NullDistance {
 			what = "A distance-only null (minus the geodesic distance from each cell to the nearest training record; Hijmans 2012)"
 		}
-		fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
+		if k == 1 {
+			fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC was %s on its one extent", what, f3(lo))
+		} else {
+			fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
+		}
 		if v, ok := auc(n.Name, vocab.BaseID); ok {
-			fmt.Fprintf(&b, " and was %s on the base region", f3(v))
+			if k == 1 {
+				b.WriteString(", the base region")
+			} else {
+				fmt.Fprintf(&b, " and was %s on the base region", f3(v))
+			}
 			var ms []string
 			for _, m := range r.Models {
 				if mv, ok := auc(m.Name, vocab.BaseID); ok && !m.IsNull() {
@@ -153,7 +161,9 @@ func nullSentences(r *Results) string {
 			lo, hi, k = math.Min(lo, sb.RatioMean), math.Max(hi, sb.RatioMean), k+1
 		}
 	}
-	if k > 0 {
+	if k == 1 {
+		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) was %s on the one extent where it is defined.", f3(lo))
+	} else if k > 0 {
 		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) ranged %s–%s across %d extents.", f3(lo), f3(hi), k)
 	}
 	return b.String()

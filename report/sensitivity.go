@@ -24,6 +24,13 @@ const (
 	// NearShareWarn: warn when more than this share of test points is near a
 	// training point (our choice).
 	NearShareWarn = 0.25
+	// MinPairedPoints: a paired difference on fewer common test points
+	// than this is reported but not judged (our choice): its normal
+	// interval from the placements, or its percentile interval from the
+	// resamples of so few points, is no basis for a verdict, a ranking or
+	// a reading against a null (with 3 points the interval can even have
+	// zero width). Its position is "too_few" and its reading ReadingTooFew.
+	MinPairedPoints = 10
 	// KmPerDegree is the length of one degree of latitude used to turn
 	// geographic cell widths into km (approximation: 40,075 km / 360 at the
 	// equator, scaled by cos(latitude) for longitude).
@@ -227,7 +234,9 @@ type ExtentDifference struct {
 	// beyond Diff (0 when both extents hold the same test points).
 	TestSetShift float64 `json:"test_set_shift"`
 	// Position of the interval against -tolerance..+tolerance: "inside",
-	// "outside" (wholly beyond) or "overlapping".
+	// "outside" (wholly beyond) or "overlapping"; "too_few" when the
+	// difference rests on fewer than MinPairedPoints test points (not
+	// judged; an exact difference always is).
 	Position string `json:"position"`
 }
 

@@ -671,6 +671,7 @@ func TestRingClause(t *testing.T) {
 		{0.95, 0.80, "raises the score"},
 		{0.71, 0.80, "adding it lowers the score"},
 		{0.40, 0.45, "more often than not"},
+		{0.40, 0.30, "so adding the ring raises the score"}, // below 0.5 but above the inner AUC
 		{0.80, 0.80, "unchanged"},
 	}
 	for _, c := range cases {

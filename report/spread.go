@@ -215,6 +215,42 @@ func signed3(v float64) string {
 	return s
 }
 
+// signedVs formats v like signed3, with more decimals when three would
+// print it as one of the cut-offs refs (0, ±T) that it is not: the bound
+// of an interval read against 0 or a tolerance must show on which side of
+// the cut-off it lies ("-0.0004", not "+0.000"; "+0.0201", not "+0.020",
+// against ±0.02). It stops at 12 decimals, below which it prints all the
+// digits that tell v apart.
+func signedVs(v float64, refs ...float64) string {
+	for dec := 3; dec <= 12; dec++ {
+		s := signedDec(v, dec)
+		clash := false
+		for _, r := range refs {
+			clash = clash || (v != r && s == signedDec(r, dec))
+		}
+		if !clash {
+			return s
+		}
+	}
+	s := strconv.FormatFloat(v, 'g', -1, 64)
+	if !strings.HasPrefix(s, "-") {
+		s = "+" + s
+	}
+	return s
+}
+
+// signedDec formats v with a sign and dec decimals (no negative zero).
+func signedDec(v float64, dec int) string {
+	s := strconv.FormatFloat(v, 'f', dec, 64)
+	if strings.Trim(s, "-0.") == "" {
+		s = strings.TrimPrefix(s, "-")
+	}
+	if !strings.HasPrefix(s, "-") {
+		s = "+" + s
+	}
+	return s
+}
+
 // pct formats a share as a whole percentage.
 func pct(v float64) string {
 	s := strconv.FormatFloat(100*v, 'f', 0, 64) + "%"

@@ -36,6 +36,10 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 	return out, vary
 }
 
+// positionTooFew is the position of a difference on fewer than
+// MinPairedPoints common test points: reported, not judged.
+const positionTooFew = "too_few"
+
 // position places the interval lo..hi against -tol..+tol.
 func position(lo, hi, tol float64) string {
 	switch {
@@ -81,6 +85,9 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	d.Defined = true
 	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
 	d.Position = position(d.Low, d.High, m.Tolerance)
+	if p.CommonPoints < MinPairedPoints {
+		d.Position = positionTooFew
+	}
 	return d
 }
 
@@ -130,28 +137,91 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		return mv
 	}
 	big := mv.Diffs[mv.Largest]
-	largest := fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(big.Diff), big.Extent, signed3(big.Low), signed3(big.High))
-	if big.Method == "exact" {
-		largest = fmt.Sprintf("%s on %s (exact: no test point moves it)", signed3(big.Diff), big.Extent)
+	largest := "the largest is " + differenceText(big, m.Tolerance)
+	exact := big.Method == "exact"
+	if big.Diff == 0 {
+		// Every difference is 0: naming one extent as "the largest" would
+		// pick it arbitrarily.
+		largest = "every one is 0"
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
 		notOn = fmt.Sprintf(" It is undefined on %s.", joinList(mv.Undefined))
 	}
+	within, largestWithin := "lies within "+tol+" with its 95% interval", largest
+	if exact {
+		within = "(exact: no test point moves it) lies within " + tol
+		if big.Diff != 0 {
+			largestWithin = fmt.Sprintf("the largest is %s on %s", signedVs(big.Diff, m.Tolerance, -m.Tolerance), big.Extent)
+		}
+	}
 	switch {
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
-		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extents the difference from %s lies wholly beyond our tolerance of %s; the largest is %s.%s",
-			name, outside, len(mv.Diffs), a.base, tol, largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s",
+			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn)
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
-		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s lies within %s with its 95%% interval; the largest is %s.",
-			name, a.base, tol, largest)
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
+	case allInside(definedDiffs(mv.Diffs)):
+		// Undetermined only because the score is undefined somewhere:
+		// the test points are not the reason.
+		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
+			name, joinList(mv.Undefined), a.base, within, largestWithin)
 	default:
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s",
-			name, tol, a.base, largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s%s",
+			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
 	}
 	return mv
+}
+
+// toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
+// it is our default (DefaultToleranceAUC and the others), "the tolerance
+// of ±0.3 set for this run" when the user chose another.
+func toleranceText(m MetricInfo) string {
+	def := map[MetricKind]float64{MetricAUC: DefaultToleranceAUC, MetricAUCUnweighted: DefaultToleranceAUC,
+		MetricPartialROC: DefaultTolerancePartialROC, MetricOmission: DefaultToleranceOmission,
+		MetricAreaFraction: DefaultToleranceOmission, MetricBoyce: DefaultToleranceBoyce}
+	if d, ok := def[m.Kind]; ok && d == m.Tolerance {
+		return "our tolerance of ±" + fmtG(m.Tolerance)
+	}
+	return "the tolerance of ±" + fmtG(m.Tolerance) + " set for this run"
+}
+
+// differenceText is "+0.078 on X (95% interval +0.063 to +0.093)", or
+// "(exact: no test point moves it)" for a difference without sampling
+// error; the bounds show on which side of ±tol they lie (signedVs).
+func differenceText(d ExtentDifference, tol float64) string {
+	if d.Method == "exact" {
+		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
+	}
+	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// tooFewText names the differences left unjudged for resting on fewer
+// than MinPairedPoints test points, or "".
+func tooFewText(ds []ExtentDifference) string {
+	var few []string
+	for _, d := range ds {
+		if d.Position == positionTooFew {
+			few = append(few, fmt.Sprintf("%s (%d)", d.Extent, d.CommonPoints))
+		}
+	}
+	if len(few) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
+}
+
+// definedDiffs returns the defined differences of ds.
+func definedDiffs(ds []ExtentDifference) []ExtentDifference {
+	var out []ExtentDifference
+	for _, d := range ds {
+		if d.Defined {
+			out = append(out, d)
+		}
+	}
+	return out
 }
 
 func allInside(ds []ExtentDifference) bool {
@@ -231,13 +301,17 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	for i, ma := range a.models {
 		for _, mb := range a.models[i+1:] {
 			r := ModelRanking{Metric: m.Key, Model: ma, Other: mb, Diffs: []ExtentDifference{}}
+			tooFew := 0
 			for _, e := range a.extents {
 				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
 					continue
 				}
 				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
-				if !d.Defined {
+				if d.Position == positionTooFew {
+					tooFew++
+				}
+				if !d.Defined || d.Position == positionTooFew {
 					continue
 				}
 				r.Extents++
@@ -254,11 +328,17 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 					r.WithinNoise++
 				}
 			}
-			if r.Extents == 0 {
+			switch {
+			case r.Extents == 0 && tooFew > 0:
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
+			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
-			} else {
-				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extents, worse on %d, within noise on %d (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Better, r.Extents, r.Worse, r.WithinNoise)
+			default:
+				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
+				if tooFew > 0 {
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+				}
 			}
 			out = append(out, r)
 		}

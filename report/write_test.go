@@ -263,7 +263,7 @@ func TestFormatting(t *testing.T) {
 		{areaRange(28232, 231212), "from 28.2 to 231 thousand km²"},
 		{areaRange(1200, 40000), "from 1.2 to 40 thousand km²"},
 		{areaRange(120, 9800), "from 120 to 9,800 km²"},
-		{areaRange(391788.6, 3251635.3), "from 392 to 3,252 thousand km²"},
+		{areaRange(391788.6, 3251635.3), "from 392 to 3,250 thousand km²"}, // three significant digits, as fmtArea
 		{signed3(0.0312), "+0.031"},
 		{signed3(-0.0004), "+0.000"},
 		{pct(0.714), "71%"},

@@ -94,7 +94,20 @@
       var i = selE.selectedIndex + d;
       if (i >= 0 && i < selE.options.length) { selE.selectedIndex = i; draw(); }
     }
-    function fx(v, n) { return (Math.round(v * Math.pow(10, n)) / Math.pow(10, n)).toFixed(n); }
+    // fx writes v with n decimals as the report's tables do (Go's
+    // strconv): the exact value rounded, a tie to the even digit.
+    // toFixed rounds the exact value but a tie away from zero, so
+    // 0.8125 would read 0.813 here and 0.812 in the tables.
+    function fx(v, n) {
+      var s = v.toFixed(n);
+      var long = Math.abs(v).toFixed(Math.min(100, n + 60));
+      var dot = long.indexOf(".");
+      if (/^50*$/.test(long.slice(dot + 1 + n))) {
+        var cut = long.slice(0, n > 0 ? dot + 1 + n : dot);
+        if (parseInt(cut.charAt(cut.length - 1), 10) % 2 === 0) { s = (v < 0 ? "-" : "") + cut; }
+      }
+      return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s;
+    }
     function el(name, attrs, text) {
       var e = document.createElementNS("http://www.w3.org/2000/svg", name);
       for (var k in attrs) { if (Object.prototype.hasOwnProperty.call(attrs, k)) { e.setAttribute(k, attrs[k]); } }
@@ -147,12 +160,12 @@
         if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
         sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) " + who(m) +
-          " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same scores on the other extents" +
+          " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model or null on the other extents" +
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
-        row("AUC", fx(c.auc, 3) + " (bootstrap SD " + fx(c.auc_sd, 3) + ")");
-        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (resamples 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
+        row("AUC", fx(c.auc, 3) + " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")");
+        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (published half-size bootstrap, 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
           row("area predicted present at that threshold", fx(c.area_fraction, 3));

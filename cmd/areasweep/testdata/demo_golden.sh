@@ -41,7 +41,11 @@
 #     the chord brackets and computes only the cells they leave, instead
 #     of every cell: those cells get brackets, so the demo's sorting-bias
 #     ratio on base moved from 0.23086153 to 0.23086344, 8e-6 relative;
-#     every score is unchanged).
+#     every score is unchanged);
+#   - rewritten on branch h7 (the analysis' sentences stored in
+#     results.json, under sensitivity, reworded so that each holds for the
+#     numbers it quotes, and the headline's area range rounded to three
+#     significant digits as the tables are; no number changed).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

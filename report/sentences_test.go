@@ -1,0 +1,860 @@
+package report
+
+import (
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"areasweep/extent/vocab"
+)
+
+// The tests in this file hold the report's sentences to the numbers they
+// quote: each case is a situation cut from the sample (or hand-made) in
+// which a sentence once said more, or other, than its numbers.
+
+// setPaired applies fn to the paired records of metric and kind for model
+// on extent.
+func setPaired(r *Results, metric string, kind PairKind, model, extent string, fn func(p *Paired)) int {
+	n := 0
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		if p.Metric == metric && p.Kind == kind && p.Model == model && p.Extent == extent {
+			fn(p)
+			n++
+		}
+	}
+	return n
+}
+
+// analyzed runs Analyze on r and fails the test on an error.
+func analyzed(t *testing.T, r *Results) *Sensitivity {
+	t.Helper()
+	r.Sensitivity = nil
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	return r.Sensitivity
+}
+
+// intervalRe finds the "95% interval A to B" of a sentence.
+var intervalRe = regexp.MustCompile(`95% interval ([+-]?[0-9.]+) to ([+-]?[0-9.]+)`)
+
+// TestVerdictSentences checks the model verdict sentences against their
+// numbers in situations where a fixed template was false: exact
+// differences said to have a 95% interval, all-zero differences whose
+// "largest" named an arbitrary extent, a verdict left undetermined by an
+// undefined score blamed on too few test points, and interval bounds a
+// hair beyond the tolerance printed as the tolerance itself.
+func TestVerdictSentences(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		metric, model string
+		verdict       Judgement
+		want, notWant []string
+	}{
+		{name: "exact robust difference has no interval",
+			metric: "area_fraction_mtp", model: "truncated", verdict: JudgementRobust,
+			want:    []string{"(exact: no test point moves it) lies within ±0.05"},
+			notWant: []string{"95% interval"}},
+		{name: "all differences 0 name no extent",
+			metric: "omission_minimum_training_presence", model: "good", verdict: JudgementRobust,
+			want:    []string{"every one is 0"},
+			notWant: []string{"the largest is +0.000 on"}},
+		{name: "undefined on one extent, every other difference inside",
+			build: func(r *Results) {
+				setPaired(r, "omission_minimum_training_presence", PairedKindExtent, "good", "hull", func(p *Paired) {
+					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
+				})
+			},
+			metric: "omission_minimum_training_presence", model: "good", verdict: JudgementUndetermined,
+			want:    []string{"it is undefined on hull", "every difference from base that could be formed lies within ±0.05"},
+			notWant: []string{"too few test points"}},
+		{name: "lower bound a hair above the tolerance",
+			build: func(r *Results) {
+				for i := range r.Paired {
+					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+					}
+				}
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.0201, 0.0399 })
+			},
+			metric: "auc", model: "good", verdict: JudgementSensitive,
+			want: []string{"+0.030 on whole (95% interval +0.0201 to +0.040)"}},
+		{name: "lower bound exactly at the tolerance",
+			build: func(r *Results) {
+				for i := range r.Paired {
+					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+					}
+				}
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.02, 0.04 })
+			},
+			metric: "auc", model: "good", verdict: JudgementUndetermined,
+			want: []string{"too few test points", "(95% interval +0.020 to +0.040)"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			if c.build != nil {
+				c.build(r)
+			}
+			s := analyzed(t, r)
+			mv := s.findModelVerdict(c.metric, c.model)
+			if mv == nil {
+				t.Fatalf("no verdict for %s of %s", c.metric, c.model)
+			}
+			if mv.Verdict != c.verdict {
+				t.Errorf("verdict %s, want %s: %s", mv.Verdict, c.verdict, mv.Sentence)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(mv.Sentence, w) {
+					t.Errorf("sentence lacks %q: %s", w, mv.Sentence)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(mv.Sentence, w) {
+					t.Errorf("sentence says %q: %s", w, mv.Sentence)
+				}
+			}
+			// Every printed bound lies on the same side of ±T as the
+			// bound itself.
+			if mv.Largest >= 0 {
+				d := mv.Diffs[mv.Largest]
+				if m := intervalRe.FindStringSubmatch(mv.Sentence); m != nil {
+					for k, v := range []float64{d.Low, d.High} {
+						p, err := strconv.ParseFloat(m[k+1], 64)
+						if err != nil {
+							t.Fatal(err)
+						}
+						for _, ref := range []float64{mv.Tolerance, -mv.Tolerance} {
+							if (p > ref) != (v > ref) || (p < ref) != (v < ref) {
+								t.Errorf("bound %v printed %s: not on its side of %v", v, m[k+1], ref)
+							}
+						}
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestSignedVs checks the bounds printed against a cut-off.
+func TestSignedVs(t *testing.T) {
+	cases := []struct {
+		v    float64
+		refs []float64
+		want string
+	}{
+		{0.063, []float64{0}, "+0.063"},
+		{-0.0004, []float64{0}, "-0.0004"}, // signed3 prints "+0.000"
+		{0.0004, []float64{0}, "+0.0004"},  // looks like touching 0 at three decimals
+		{0, []float64{0}, "+0.000"},        // exactly the cut-off
+		{0.0201, []float64{0.02, -0.02}, "+0.0201"},
+		{-0.02001, []float64{0.02, -0.02}, "-0.02001"},
+		{0.02, []float64{0.02, -0.02}, "+0.020"},
+		{0.0249, []float64{0.02, -0.02}, "+0.025"}, // rounds away from the cut-off: three decimals tell
+	}
+	for _, c := range cases {
+		if got := signedVs(c.v, c.refs...); got != c.want {
+			t.Errorf("signedVs(%v, %v) = %q, want %q", c.v, c.refs, got, c.want)
+		}
+	}
+}
+
+// TestAboveNullBorderline: an interval that only just includes or
+// excludes 0 is printed so that the reader sees which (the sign of a
+// bound that rounds to 0.000 at three decimals was lost); the gap's ends
+// are named as the smallest and largest extents, not as the smallest and
+// largest gaps.
+func TestAboveNullBorderline(t *testing.T) {
+	cases := []struct {
+		name    string
+		low     float64
+		reading string
+		want    string
+	}{
+		{"interval just includes 0", -0.0004, ReadingNotAbove, "95% interval -0.0004 to +0.140 that includes 0"},
+		{"interval just above 0", 0.0004, ReadingAbove, "95% interval +0.0004 to +0.140"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			for i := range r.Paired {
+				if r.Paired[i].Kind == PairedKindNull {
+					r.Paired[i].Low = 0.06
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Kind == PairedKindNull && p.Extent == "base" {
+					p.Low = c.low
+				}
+			}
+			s := analyzed(t, r)
+			for _, an := range s.AboveNull {
+				if an.Metric != "auc" || an.Model != "good" {
+					continue
+				}
+				if an.BaseReading != c.reading {
+					t.Errorf("reading %s, want %s", an.BaseReading, c.reading)
+				}
+				if !strings.Contains(an.Sentence, c.want) {
+					t.Errorf("sentence lacks %q: %s", c.want, an.Sentence)
+				}
+				if !strings.Contains(an.Sentence, "(the smallest extent)") {
+					t.Errorf("sentence does not say that the gap's ends are extents: %s", an.Sentence)
+				}
+				head := strings.Replace(c.want, " that includes 0", "", 1)
+				if !strings.Contains(s.Headline, head) {
+					t.Errorf("headline lacks %q: %s", head, s.Headline)
+				}
+				return
+			}
+			t.Fatal("no AUC comparison of good with the null")
+		})
+	}
+}
+
+// nullPaired returns one AUC record of kind null per scored extent of
+// the first model, +0.100 with interval +0.060 to +0.140 (the fixture of
+// TestAboveNullReadings).
+func nullPaired(r *Results) []Paired {
+	var out []Paired
+	for _, sc := range r.Scores {
+		if sc.Model != "good" || !sc.Scored {
+			continue
+		}
+		out = append(out, Paired{Metric: "auc", Kind: PairedKindNull, Model: "good", Extent: sc.Extent, OtherModel: DistanceNullName, OtherExtent: sc.Extent,
+			CommonPoints: sc.TestPoints, Method: "placements", Defined: true, A: 0.9, B: 0.8, Diff: 0.1, SE: 0.02, Low: 0.06, High: 0.14})
+	}
+	return out
+}
+
+// TestReviewerNulls: the reply to a reviewer describes each null as what
+// it is. A null of the user's (an effort surface, say) is not the
+// distance-only null, and a model that does not beat it lacks what that
+// null holds, not "skill beyond the geography of the records".
+func TestReviewerNulls(t *testing.T) {
+	cases := []struct {
+		name          string
+		kind          string
+		want, notWant []string
+	}{
+		{"distance-only null", NullDistance,
+			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no skill beyond the geography of the records"}, nil},
+		{"user null", "user",
+			[]string{"We also scored the null " + DistanceNullName + " on", "no skill beyond what " + DistanceNullName + " holds"},
+			[]string{"knows only where the training records are", "geography", "Hijmans"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			for i := range r.Models {
+				if r.Models[i].IsNull() {
+					r.Models[i].NullKind = c.kind
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.Low = -0.01 })
+			analyzed(t, r)
+			rv := reviewerNullText(r.Sensitivity)
+			for _, w := range c.want {
+				if !strings.Contains(rv, w) {
+					t.Errorf("reply lacks %q: %s", w, rv)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(rv, w) {
+					t.Errorf("reply says %q: %s", w, rv)
+				}
+			}
+		})
+	}
+}
+
+// TestHeadlineRankings: the headline gives every pair of models, the one
+// better beyond noise on more extents first, and never "A is better than
+// B on 0 of n extents" (true, but read as a finding).
+func TestHeadlineRankings(t *testing.T) {
+	cases := []struct {
+		rk   ModelRanking
+		want string
+	}{
+		{ModelRanking{Model: "a", Other: "b", Extents: 13, Better: 13}, "a is better than b beyond noise on 13 of 13 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 13, Worse: 12, WithinNoise: 1}, "b is better than a beyond noise on 12 of 13 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 6, Better: 1, Worse: 4, WithinNoise: 1}, "b is better than a beyond noise on 4 of 6 extents and worse on 1"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 6, WithinNoise: 6}, "a and b differ beyond noise on none of 6 extents"},
+		{ModelRanking{Model: "a", Other: "b", Extents: 1, Better: 1}, "a is better than b beyond noise on 1 of 1 extent"},
+	}
+	for _, c := range cases {
+		if got := rankingClause(c.rk); got != c.want {
+			t.Errorf("%+v: %q, want %q", c.rk, got, c.want)
+		}
+	}
+	// The sample's three models: every pair, in the headline.
+	r := analyzedSample(t)
+	for _, w := range []string{
+		"By AUC, good and truncated differ beyond noise on none of 6 extents",
+		"good is better than broad beyond noise on 6 of 8 extents",
+		"truncated is better than broad beyond noise on 4 of 6 extents",
+		"The partial ROC ratio at E = 0.05 is extent-sensitive for good, truncated and broad.",
+	} {
+		if !strings.Contains(r.Sensitivity.Headline, w) {
+			t.Errorf("headline lacks %q: %s", w, r.Sensitivity.Headline)
+		}
+	}
+}
+
+// onlyExtents keeps the extents ids of r (status ok) and marks the others
+// empty, with their scores, rings and paired records dropped.
+func onlyExtents(r *Results, ids ...string) {
+	keep := map[string]bool{}
+	for _, id := range ids {
+		keep[id] = true
+	}
+	for i := range r.Extents {
+		if !keep[r.Extents[i].ID] {
+			r.Extents[i].Status = vocab.StatusEmpty
+		}
+	}
+	var sc []Score
+	for _, s := range r.Scores {
+		if keep[s.Extent] {
+			sc = append(sc, s)
+		}
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if keep[p.Extent] && keep[p.OtherExtent] {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	r.Rings = nil
+}
+
+// TestMethodsText checks the methods paragraph, the results and the reply
+// to a reviewer in situations where they said more than the numbers.
+func TestMethodsTextSituations(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "the sample: half the extents hold every test point",
+			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
+				"on 8 evaluation extents (the base extent, base, and 7 others) from 28.2 to 231 thousand km²",
+				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05, Boyce index ±0.1; areasweep's defaults, not a published standard)",
+				"and undetermined otherwise; a difference on fewer than 10 common test records was not judged.",
+				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
+				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
+			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,"}},
+		{name: "no extent holds every test point",
+			build: func(r *Results) {
+				for i := range r.Extents {
+					if r.Extents[i].ID == "whole" || r.Extents[i].ID == "region_b100" || r.Extents[i].ID == "region_b200" || r.Extents[i].ID == "points_b100" {
+						r.Extents[i].TestPoints = 21
+					}
+				}
+			},
+			want:    []string{"the extents differ in their test records: base 21, region_b50 21, region_b100 21,"},
+			notWant: []string{"on most", "all 22 on"}},
+		{name: "a model not scored on the base extent",
+			build: func(r *Results) {
+				for i := range r.Scores {
+					if r.Scores[i].Model == "truncated" && r.Scores[i].Extent == "base" {
+						r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has no data on 6% of the extent's cells"
+					}
+				}
+			},
+			want:    []string{"AUC of truncated ranged 0.797–0.932 over 5 extents (not scored on base) and was undetermined (not scored on base)"},
+			notWant: []string{"0.000 on base", "SE 0.000"}},
+		{name: "no nested chain",
+			build:   func(r *Results) { r.Rings = nil },
+			notWant: []string{"slope of AUC"}},
+		{name: "one extent",
+			build: func(r *Results) { onlyExtents(r, "base") },
+			want: []string{"Only one evaluation extent, base (40,600 km², 21 test points), could be scored, so no score can be compared across extents; AUC there: good 0.830,",
+				"AUC of good was 0.830 on its one scored extent, base (SE 0.046 from the test records)", "on 1 evaluation extent (base, 40,600 km²)",
+				"With one extent, no score can be compared across extents."},
+			notWant: []string{"1 extents", "Across 1", "ranged 0.830–0.830", "too few"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			if c.build != nil {
+				c.build(r)
+			}
+			s := analyzed(t, r)
+			text := s.Headline + "\n" + methodsText(r)
+			for _, w := range c.want {
+				if !strings.Contains(text, w) {
+					t.Errorf("text lacks %q:\n%s", w, text)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(text, w) {
+					t.Errorf("text says %q:\n%s", w, text)
+				}
+			}
+		})
+	}
+}
+
+// TestTruncationCutoffsOurs: the truncation sentences call their cut-offs
+// ours and quote them.
+func TestTruncationCutoffsOurs(t *testing.T) {
+	r := analyzedSample(t)
+	for _, tc := range r.Sensitivity.Truncation {
+		for _, w := range []string{"by our cut-offs", "flagged from 20%"} {
+			if !strings.Contains(tc.Sentence, w) {
+				t.Errorf("%s: lacks %q: %s", tc.Model, w, tc.Sentence)
+			}
+		}
+		if strings.Contains(tc.Sentence, "extent(s)") {
+			t.Errorf("%s: %s", tc.Model, tc.Sentence)
+		}
+	}
+}
+
+// TestMetricsCaptionBars: the caption of the scores-against-area figure
+// names the resamples each bar comes from. AUC's bar is ± Score.AUCBootSD,
+// the SD over the full-size paired resamples (it estimates the AUC's own
+// standard error); it was described as the SD of the half-size partial
+// ROC bootstrap, "wider than the uncertainty of the full-sample AUC".
+func TestMetricsCaptionBars(t *testing.T) {
+	cases := []struct {
+		name          string
+		paired, iters int
+		aucBar        bool
+		want, notWant []string
+	}{
+		{"the sample's settings", 100, 200, true,
+			[]string{"AUC bars: plus and minus one SD of AUC over the 100 full-size paired resamples", "the mean ratio of the 200 resamples of 50% of the test records"},
+			[]string{"wider than", "SD of AUC over the 200"}},
+		{"one paired resample", 1, 200, false,
+			[]string{"the mean ratio of the 200 resamples"}, []string{"AUC bars"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			r.Settings.PairedResamples, r.Settings.Iterations = c.paired, c.iters
+			analyzed(t, r)
+			f := metricsFigure(r)
+			for _, w := range c.want {
+				if !strings.Contains(f.Caption, w) {
+					t.Errorf("caption lacks %q: %s", w, f.Caption)
+				}
+			}
+			for _, w := range c.notWant {
+				if strings.Contains(f.Caption, w) {
+					t.Errorf("caption says %q: %s", w, f.Caption)
+				}
+			}
+			m := r.Sensitivity.Metrics[0]
+			pts := metricPoints(r, m, "good")
+			if len(pts) == 0 {
+				t.Fatal("no AUC point")
+			}
+			for _, p := range pts {
+				if p.bar != c.aucBar {
+					t.Errorf("AUC bar %v, want %v", p.bar, c.aucBar)
+				}
+				var sd float64
+				for _, sc := range r.Scores {
+					if sc.Model == "good" && sc.Scored && sc.AreaKm2 == p.area {
+						sd = sc.AUCBootSD
+					}
+				}
+				if p.bar && (math.Abs(p.hi-p.v-sd) > 1e-12 || math.Abs(p.v-p.lo-sd) > 1e-12) {
+					t.Errorf("bar %v..%v around %v, want ± %v", p.lo, p.hi, p.v, sd)
+				}
+			}
+		})
+	}
+}
+
+// TestFewTestPoints: a paired difference on fewer than MinPairedPoints
+// common test points is reported, not judged. With 3 test points the
+// paired AUC interval can have zero width and read as "wholly beyond the
+// tolerance", the resamples' percentiles likewise; no verdict, ranking or
+// reading against a null rests on them.
+func TestFewTestPoints(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Model == "good" || p.OtherModel == "good" {
+			p.CommonPoints = 3
+			if p.Metric == "auc" && p.Kind == PairedKindExtent {
+				p.Diff, p.Low, p.High = 0.1, 0.1, 0.1 // zero width: every point moved alike
+			}
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "Not judged, on fewer than 10 common test points (our cut-off): region_b50 (3)") {
+		t.Errorf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	for _, d := range mv.Diffs {
+		if d.Defined && d.Position != positionTooFew {
+			t.Errorf("%s: position %s on 3 test points", d.Extent, d.Position)
+		}
+	}
+	for _, rk := range s.Rankings {
+		if rk.Model == "good" && rk.Extents != 0 {
+			t.Errorf("%s: good compared on %d extents of 3 test points", rk.Metric, rk.Extents)
+		}
+	}
+	for _, an := range s.AboveNull {
+		if an.Model != "good" {
+			continue
+		}
+		if an.BaseReading != ReadingTooFew || an.Above+an.NotAbove+an.Below != 0 || !strings.Contains(an.Sentence, "whether it beats the null is not told") {
+			t.Errorf("above null: %+v", an)
+		}
+	}
+	if !strings.Contains(s.Headline, "AUC of good ranged 0.798–0.966 and is undetermined (largest difference from base +0.100 on region_b50, 95% interval +0.100 to +0.100, on 3 common test points: not judged)") {
+		t.Errorf("headline: %s", s.Headline)
+	}
+	if strings.Contains(s.Headline, "null: good beats") || strings.Contains(s.Headline, "good does not beat") || !strings.Contains(s.Headline, "whether good beats "+DistanceNullName+" on base is not told") {
+		t.Errorf("headline: %s", s.Headline)
+	}
+	if rv := reviewerNullText(s); strings.Contains(rv, "no skill") || !strings.Contains(rv, "too few to compare good (3 common test records)") {
+		t.Errorf("reply: %s", rv)
+	}
+	for _, text := range []string{aboveNullNote, aboveNullSummaryNote, ExtentSensitiveDefinition} {
+		if !strings.Contains(text, "fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
+			t.Errorf("quotes another cut-off: %s", text)
+		}
+	}
+}
+
+// TestCutoffShares: a share compared with a cut-off is printed so that it
+// does not read as the cut-off itself (19.96% of the area at the floor is
+// not "20%, flagged from 20%"), and a share exactly at the warning level
+// is said to be at it, not below it.
+func TestCutoffShares(t *testing.T) {
+	cases := []struct {
+		v, cut float64
+		want   string
+	}{
+		{0.1996, 0.20, "19.96%"},
+		{0.2004, 0.20, "20.04%"},
+		{0.20, 0.20, "20%"},
+		{0.69, 0.25, "69%"},
+		{0.00003, 0.20, "0.003%"},
+	}
+	for _, c := range cases {
+		if got := pctVs(c.v, c.cut); got != c.want {
+			t.Errorf("pctVs(%v, %v) = %q, want %q", c.v, c.cut, got, c.want)
+		}
+	}
+
+	r := loadSample(t)
+	for i := range r.Models {
+		r.Models[i].FloorShare = 0.1996
+	}
+	for _, tc := range analyzed(t, r).Truncation {
+		if len(tc.Tails) > 0 {
+			continue // flagged by its ROC tails; the sentence is about them
+		}
+		if tc.FloorFlag || !strings.Contains(tc.Sentence, "covers 19.96% of the valid area (flagged from 20%)") {
+			t.Errorf("%s: floor flag %v: %s", tc.Model, tc.FloorFlag, tc.Sentence)
+		}
+	}
+
+	// 5 of 20 test points near a training point: 25%, at the level.
+	r = loadSample(t)
+	k, near := 0, 0
+	for i := range r.Points {
+		p := &r.Points[i]
+		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
+			continue
+		}
+		switch {
+		case k >= 20:
+			p.Status = vocab.PointThinned
+		case near < 5:
+			p.NearestTrainKm, near = 0.5, near+1
+		default:
+			p.NearestTrainKm = 500
+		}
+		k++
+	}
+	ind := analyzed(t, r).Independence
+	if ind.N != 20 || ind.NearCount != 5 || ind.Warn || !strings.Contains(ind.Sentence, "25% lie within 3 cell widths") || !strings.Contains(ind.Sentence, "at our 25% warning level (we warn above it)") {
+		t.Errorf("%d of %d near, warn %v: %s", ind.NearCount, ind.N, ind.Warn, ind.Sentence)
+	}
+}
+
+// TestHijmansCitedWhenCited: the reference list holds Hijmans (2012) when
+// the text cites it (the distance-only null, the sorting bias), not for a
+// null of the user's alone.
+func TestHijmansCitedWhenCited(t *testing.T) {
+	for _, kind := range []string{NullDistance, "user"} {
+		r := withNull(t)
+		for i := range r.Models {
+			if r.Models[i].IsNull() {
+				r.Models[i].NullKind = kind
+			}
+		}
+		if kind != NullDistance {
+			for i := range r.Extents {
+				r.Extents[i].SortingBias = nil // only the distance-only null gives it
+			}
+		}
+		analyzed(t, r)
+		text := methodsText(r)
+		refs := text[strings.Index(text, "## References"):]
+		cited := strings.Contains(text[:strings.Index(text, "## References")], "Hijmans 2012")
+		if listed := strings.Contains(refs, "Hijmans, R.J. (2012)"); listed != cited || cited != (kind == NullDistance) {
+			t.Errorf("%s null: cited %v, listed %v", kind, cited, listed)
+		}
+	}
+}
+
+// TestChainSentenceAgainstTheChange: when steps go both ways, the step of
+// largest share can go against the chain's change; the sentence says so
+// instead of "-500% of the gain comes from".
+func TestChainSentenceAgainstTheChange(t *testing.T) {
+	cs := ChainSummary{Chain: "c", Model: "m", Members: []string{"a", "b", "c", "d"}, MemberAreasKm2: []float64{10, 20, 40, 80},
+		StartAUC: 0.80, EndAUC: 0.81, Change: 0.01, SharesDefined: true, Largest: 0,
+		Steps: []ChainStep{
+			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.80, AUCOuter: 0.75, AUCRing: 0.70, AUCRingDefined: true, Change: -0.05, Share: -5},
+			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.75, AUCOuter: 0.78, AUCRing: 0.81, AUCRingDefined: true, Change: 0.03, Share: 3},
+			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.78, AUCOuter: 0.81, AUCRing: 0.84, AUCRingDefined: true, Change: 0.03, Share: 3},
+		}}
+	got := chainSentence(&cs)
+	if strings.Contains(got, "-500% of the gain comes") || !strings.Contains(got, "the largest step goes against the gain (-500% of it): the ring b minus a") {
+		t.Errorf("%s", got)
+	}
+}
+
+// TestRankingSentenceReasons: a model comparison that cannot be made says
+// why: no difference defined (an undefined score), or too few common test
+// points; the cut-off is not blamed for an undefined score.
+func TestRankingSentenceReasons(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(p *Paired)
+		want, notWant string
+	}{
+		{"undefined on every extent", func(p *Paired) { p.Defined = false },
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
+		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points.", ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Metric == "partial_roc_e0.05" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" {
+					c.build(p)
+				}
+			}
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric != "partial_roc_e0.05" || rk.Model != "good" || rk.Other != "truncated" {
+					continue
+				}
+				if rk.Sentence != c.want || (c.notWant != "" && strings.Contains(rk.Sentence, c.notWant)) {
+					t.Errorf("%q, want %q", rk.Sentence, c.want)
+				}
+				return
+			}
+			t.Fatal("no comparison of good and truncated")
+		})
+	}
+}
+
+// TestOrderText: the order of the models on an extent shows ties as "="
+// ("a > b" for two models with the same AUC said one was above the
+// other).
+func TestOrderText(t *testing.T) {
+	cases := []struct {
+		models []string
+		ranks  []float64
+		want   string
+	}{
+		{[]string{"a", "b", "c"}, []float64{1, 2, 3}, "a > b > c"},
+		{[]string{"a", "b", "c"}, []float64{3, 1.5, 1.5}, "b = c > a"},
+		{[]string{"a", "b"}, []float64{1.5, 1.5}, "a = b"},
+	}
+	for _, c := range cases {
+		if got := orderText(c.models, c.ranks); got != c.want {
+			t.Errorf("%v %v: %q, want %q", c.models, c.ranks, got, c.want)
+		}
+	}
+	// Two models with the same AUC everywhere (one a rescaling of the
+	// other): the page's order table says they tie.
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			for j := range r.Scores {
+				if r.Scores[j].Model == "good" && r.Scores[j].Extent == r.Scores[i].Extent {
+					r.Scores[i].AUC = r.Scores[j].AUC
+				}
+			}
+		}
+	}
+	s := analyzed(t, r)
+	v := decompositionSection(s, map[string]string{})
+	if v == nil || v.Ranking == nil || !strings.Contains(string(v.Ranking.Body()), "good = broad") {
+		t.Errorf("order table without the tie")
+	}
+}
+
+// TestToleranceText: a tolerance is called ours only when it is our
+// default; one the user set is the run's.
+func TestToleranceText(t *testing.T) {
+	for _, c := range []struct {
+		tol  float64
+		want string
+	}{{DefaultToleranceAUC, "against our tolerance of ±0.02"}, {0.3, "against the tolerance of ±0.3 set for this run"}} {
+		r := loadSample(t)
+		r.Settings.ToleranceAUC = c.tol
+		s := analyzed(t, r)
+		if !strings.Contains(s.Headline, c.want) {
+			t.Errorf("tolerance %v: headline lacks %q: %s", c.tol, c.want, s.Headline)
+		}
+		if c.tol != DefaultToleranceAUC {
+			for _, mv := range s.ModelVerdicts {
+				if strings.Contains(mv.Sentence, "our tolerance of ±0.3") {
+					t.Errorf("%s", mv.Sentence)
+				}
+			}
+		}
+	}
+}
+
+// TestEffectCaptionCutoff: the batch figure's caption does not call every
+// bar beyond the band extent-sensitive: one on fewer than MinPairedPoints
+// common test points is not judged.
+func TestEffectCaptionCutoff(t *testing.T) {
+	s, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, ok := effectFigure(s)
+	if !ok || !strings.Contains(f.Caption, "unless it rests on fewer than "+strconv.Itoa(MinPairedPoints)+" common test points") {
+		t.Errorf("caption: %s", f.Caption)
+	}
+}
+
+// TestOneTestPointHasNoSE: with one test record the placements give no
+// SE (Score.AUCSE is 0 by convention); the results do not print "SE
+// 0.000".
+func TestOneTestPointHasNoSE(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "good" && r.Scores[i].Extent == "base" {
+			r.Scores[i].TestPoints, r.Scores[i].AUCSE = 1, 0
+		}
+	}
+	analyzed(t, r)
+	text := resultNumbers(r)
+	if !strings.Contains(text, "(0.830 on base, no SE with fewer than two test records)") {
+		t.Errorf("%s", text)
+	}
+}
+
+// TestPageHeaderOneExtent: the page's header counts one scored extent in
+// the singular.
+func TestPageHeaderOneExtent(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base")
+	analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), "3 models · 1 extent scored</p>") {
+		t.Errorf("header: %s", regexp.MustCompile(`<p class="sub">[^<]*</p>`).Find(page))
+	}
+}
+
+// TestROCCaptionNulls: the ROC caption mentions null panels only when the
+// run has a null.
+func TestROCCaptionNulls(t *testing.T) {
+	r := analyzedSample(t)
+	if c := rocFigure(r).Caption; strings.Contains(c, "per null") {
+		t.Errorf("no null, caption: %s", c)
+	}
+	r = withNull(t)
+	analyzed(t, r)
+	if c := rocFigure(r).Caption; !strings.Contains(c, "(and per null, after the models)") {
+		t.Errorf("with a null, caption: %s", c)
+	}
+}
+
+// TestAreaRangeRoundsAsTheTables: the headline's and the reply's area
+// range rounds each area as the extent lists and tables do (fmtArea):
+// the demo's whole raster was "3,252 thousand km²" in the headline and
+// "3,250,000 km²" in the methods text's list.
+func TestAreaRangeRoundsAsTheTables(t *testing.T) {
+	cases := []struct {
+		lo, hi float64
+		want   string
+	}{
+		{391788.6, 3251635.3, "from 392 to 3,250 thousand km²"},
+		{28183, 230912, "from 28.2 to 231 thousand km²"},
+		{5432, 84900, "from 5.43 to 84.9 thousand km²"},
+		{41.23, 9876, "from 41.2 to 9,880 km²"},
+	}
+	for _, c := range cases {
+		got := areaRange(c.lo, c.hi)
+		if got != c.want {
+			t.Errorf("areaRange(%v, %v) = %q, want %q", c.lo, c.hi, got, c.want)
+		}
+		if c.hi < 1e4 {
+			continue
+		}
+		// The same number as fmtArea's, in thousands.
+		for k, v := range []float64{c.lo, c.hi} {
+			f := strings.Fields(strings.TrimPrefix(got, "from "))
+			th, err := strconv.ParseFloat(strings.ReplaceAll(f[2*k], ",", ""), 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			km, _ := strconv.ParseFloat(strings.ReplaceAll(fmtArea(v), ",", ""), 64)
+			if math.Abs(th*1000-km) > 1e-6*km {
+				t.Errorf("%v: %s thousand here, %s km² in the tables", v, f[2*k], fmtArea(v))
+			}
+		}
+	}
+}
+
+// TestOmittedNoteFollowsTheMaps: the note on omitted test points says the
+// maps mark them only when the report has maps, and names the model.
+func TestOmittedNoteFollowsTheMaps(t *testing.T) {
+	for _, preview := range []bool{true, false} {
+		r := loadSample(t)
+		if !preview {
+			r.Preview = nil
+		}
+		analyzed(t, r)
+		page, err := htmlPage(r, nil, "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		says := strings.Contains(string(page), "the maps mark the test points model "+r.Models[0].Name+" omits")
+		if says != preview {
+			t.Errorf("preview %v: the page says the maps mark omitted points: %v", preview, says)
+		}
+	}
+}
+
+// TestRingsNoteBothSteps: the waterfall's note reads a negative step of
+// either kind; a dashed step (test records entering) adds no ring, so
+// "the ring's own AUC is below" cannot explain it.
+func TestRingsNoteBothSteps(t *testing.T) {
+	for _, w := range []string{"A solid arrow pointing left", "a dashed one, that the test records first falling inside place lower"} {
+		if !strings.Contains(ringsNote, w) {
+			t.Errorf("note lacks %q: %s", w, ringsNote)
+		}
+	}
+}
