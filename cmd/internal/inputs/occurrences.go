@@ -142,10 +142,81 @@ func ReadOccurrences(path string, geographic bool) ([]Record, error) {
 // read error from r. When several lines are wrong, the first problem found
 // is reported: problems of form (numbers, roles, quoting) are found in a
 // first pass, range problems after it, and missing roles last.
+//
+// A tab-separated table is first read with CSV quoting; when that fails on
+// a quote (a GBIF download quotes nothing, so a locality such as
+// 5 km N of "Big Rock" holds bare quotes) and r can seek, it is read again
+// with quotes as ordinary characters, one record per line (see plainRows).
 func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, error) {
 	if name == "" {
 		name = "input"
 	}
+	recs, err := parseOccurrences(r, name, geographic, false)
+	var qe *tabQuoteError
+	if !errors.As(err, &qe) {
+		return recs, err
+	}
+	s, ok := r.(io.Seeker)
+	if !ok {
+		return nil, qe.err
+	}
+	if _, serr := s.Seek(0, io.SeekStart); serr != nil {
+		return nil, qe.err
+	}
+	recs, err = parseOccurrences(r, name, geographic, true)
+	var pe *ParseError
+	if errors.As(err, &pe) {
+		pe.Err = fmt.Errorf("%w (the table was read with quotes as ordinary characters, as in a GBIF download, "+
+			"because line %d is not valid CSV quoting)", pe.Err, qe.line)
+	}
+	return recs, err
+}
+
+// tabQuoteError marks a quoting error in a tab-separated table, which
+// ParseOccurrences answers by reading the table again without quoting.
+type tabQuoteError struct {
+	err  error
+	line int
+}
+
+func (e *tabQuoteError) Error() string { return e.err.Error() }
+func (e *tabQuoteError) Unwrap() error { return e.err }
+
+// plainRows reads a tab-separated table with no quoting, as GBIF writes
+// its downloads: each physical line is one record, cells are split at
+// every tab, and a cell that starts and ends with a double quote loses
+// them (with "" inside read as "), so that a header or role written
+// "role" still reads. It returns the cells and the line number, skipping
+// lines whose cells are all blank; io.EOF at the end.
+func plainRows(br *bufio.Reader, name string, perr func(int, string, error) error) func() ([]string, int, error) {
+	line := 0
+	return func() ([]string, int, error) {
+		for {
+			s, err := br.ReadString('\n')
+			if err != nil && err != io.EOF {
+				return nil, 0, tooLarge(err, perr, name)
+			}
+			if s == "" && err == io.EOF {
+				return nil, 0, io.EOF
+			}
+			line++
+			s = strings.TrimSuffix(strings.TrimSuffix(s, "\n"), "\r")
+			rec := strings.Split(s, "\t")
+			for i, c := range rec {
+				if t := strings.TrimSpace(c); len(t) >= 2 && t[0] == '"' && t[len(t)-1] == '"' {
+					rec[i] = strings.ReplaceAll(t[1:len(t)-1], `""`, `"`)
+				}
+			}
+			if !allBlank(rec) {
+				return rec, line, nil
+			}
+		}
+	}
+}
+
+// parseOccurrences is ParseOccurrences reading CSV quoting, or none when
+// plain (a tab-separated table only).
+func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Record, error) {
 	perr := func(line int, field string, err error) error {
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
@@ -183,6 +254,9 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			"(for example lon,lat,role) and one line per occurrence below it", ErrNoRecords))
 	}
 	delim := detectDelimiter(header)
+	if plain && delim == '\t' {
+		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
+	}
 
 	cr := csv.NewReader(io.MultiReader(bytes.NewReader(pre), br))
 	cr.Comma = delim
@@ -200,9 +274,13 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			if err != nil {
 				var pe *csv.ParseError
 				if errors.As(err, &pe) {
-					return nil, 0, perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
+					e := perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
+					if delim == '\t' && !plain && (errors.Is(pe.Err, csv.ErrBareQuote) || errors.Is(pe.Err, csv.ErrQuote)) {
+						e = &tabQuoteError{err: e, line: pe.Line}
+					}
+					return nil, 0, e
 				}
 				return nil, 0, tooLarge(err, perr, name)
 			}
@@ -213,7 +291,12 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			return rec, line, nil
 		}
 	}
+	return readRecords(readRow, delim, perr, geographic)
+}
 
+// readRecords reads the header and the records from readRow, which returns
+// each non-blank row with its physical line number, and io.EOF at the end.
+func readRecords(readRow func() ([]string, int, error), delim rune, perr func(int, string, error) error, geographic bool) ([]Record, error) {
 	hdr, hdrLine, err := readRow()
 	if err == io.EOF {
 		return nil, perr(0, "", fmt.Errorf("%w: no header line found", ErrNoRecords))

@@ -73,6 +73,14 @@ func okCases() []okCase {
 		{name: "projected large latitude-like values not swapped", in: "lon,lat,role\n10,120,train\n20,-300,test\n", geographic: false,
 			want: []Record{{2, 10, 120, vocab.RoleTrain}, {3, 20, -300, vocab.RoleTest}}},
 		{name: "row longer than header", in: "lon,lat,role\n1.5,2.5,train,extra,cells\n-3,4,test\n", geographic: true, want: twoRecs},
+		// A GBIF download is tab-separated and quotes nothing: quotes in a
+		// locality are ordinary characters, even at the start of a cell.
+		{name: "tab GBIF bare quotes", in: "gbifID\tlocality\tdecimalLatitude\tdecimalLongitude\trole\n1\t5 km N of \"Big Rock\", 12\" stone\t2.5\t1.5\ttrain\n2\t\"Holotype\" site\t4\t-3\ttest\n", geographic: true, want: twoRecs},
+		{name: "tab GBIF cell opening a quote", in: "locality\tlat\tlon\trole\n\"Holotype site\t2.5\t1.5\ttrain\nx\t4\t-3\ttest\n", geographic: true, want: twoRecs},
+		{name: "tab R write.table escapes", in: "\"lon\"\t\"lat\"\t\"role\"\t\"note\"\n1.5\t2.5\t\"train\"\t\"a \\\"q\\\" b\"\n-3\t4\t\"test\"\tc\n", geographic: true, want: twoRecs},
+		{name: "tab CSV quoting with a tab in a cell", in: "lon\tlat\trole\tnote\n1.5\t2.5\ttrain\t\"a\tb \"\"c\"\"\"\n-3\t4\ttest\tc\n", geographic: true, want: twoRecs},
+		{name: "tab GBIF bare quotes CRLF", in: "lon\tlat\trole\tnote\r\n1.5\t2.5\ttrain\t12\"\r\n\r\n-3\t4\ttest\tc\r\n", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 	}...)
 	return cs
 }
@@ -126,6 +134,8 @@ func errCases() []errCase {
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
+		{name: "tab bare quote then a bad number", in: "lon\tlat\trole\tnote\n1\t2\ttrain\ta\"b\n3\tabc\ttest\tc\n", is: ErrBadNumber, line: 3, field: "lat",
+			contains: []string{`"abc"`, "quotes as ordinary characters", "line 2 is not valid CSV quoting"}},
 		{name: "utf16 le", in: "\xFF\xFEl\x00o\x00n\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-16", "CSV UTF-8"}},
 		{name: "utf16 be", in: "\xFE\xFF\x00l\x00o", is: ErrEncoding, line: 1},
 		{name: "empty file", in: "", is: ErrNoRecords, contains: []string{"file is empty", "header line"}},
@@ -220,6 +230,19 @@ func TestReadOccurrencesFile(t *testing.T) {
 	}
 	t.Run("good", func(t *testing.T) {
 		got, err := ReadOccurrences(good, true)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(got, twoRecs) {
+			t.Fatalf("got %+v want %+v", got, twoRecs)
+		}
+	})
+	t.Run("GBIF download with bare quotes", func(t *testing.T) {
+		gbif := filepath.Join(dir, "occurrence.txt")
+		if err := os.WriteFile(gbif, []byte("gbifID\tlocality\tdecimalLatitude\tdecimalLongitude\trole\n1\t\"Big Rock\" 5 km N\t2.5\t1.5\ttrain\n2\t12\" stone\t4\t-3\ttest\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		got, err := ReadOccurrences(gbif, true)
 		if err != nil {
 			t.Fatal(err)
 		}
