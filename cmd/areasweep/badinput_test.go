@@ -394,6 +394,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	nonEmpty := filepath.Join(f.outs, "nonempty")
 	os.MkdirAll(nonEmpty, 0o755)
 	os.WriteFile(filepath.Join(nonEmpty, "notes.txt"), []byte("mine"), 0o644)
+	ownFigure := filepath.Join(f.outs, "ownfigure")
+	os.MkdirAll(filepath.Join(ownFigure, "figures"), 0o755)
+	os.WriteFile(filepath.Join(ownFigure, "figures", "my_figure.png"), []byte("mine"), 0o644)
+	os.WriteFile(filepath.Join(ownFigure, "results.json"), []byte("{}"), 0o644)
 	aFile := filepath.Join(f.outs, "afile")
 	os.WriteFile(aFile, []byte("x"), 0o644)
 
@@ -453,6 +457,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"study file out: ..", []string{"run", "--study", studyOutUp, "--force", "--quiet"}, 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
 		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory"}, "", aFile},
 		{"out not empty without force", append(f.run("--out", nonEmpty), "--quiet"), 2, []string{"not empty", "--force"}, "", nonEmpty},
+		{"force with a file of the user's in figures/", append(f.run("--out", ownFigure, "--force"), "--quiet"), 2, []string{"my_figure.png", "not written by areasweep", "--force replaces as a whole"}, "", ownFigure},
 		{"out below a file", append(f.run("--out", filepath.Join(aFile, "sub")), "--quiet"), 2, []string{"afile", "cannot be used", "not a directory"}, "", filepath.Join(aFile, "sub")},
 
 		// Occurrence tables.

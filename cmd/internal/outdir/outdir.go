@@ -14,6 +14,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -77,8 +79,10 @@ type Dir struct {
 	force   bool
 	lock    *os.File
 	created []string // parent folders this run made, deepest first
-	mu      sync.Mutex
-	done    bool
+	// demoInputs are the names of the files the demo writes into inputs/.
+	demoInputs []string
+	mu         sync.Mutex
+	done       bool
 }
 
 // active are the output directories of runs in progress, for the signal
@@ -99,10 +103,74 @@ func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
 // Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
 func Open(out string, force bool, inputs []string) (*Dir, error) {
+	return open(out, force, inputs, false, nil)
+}
+
+// OpenDemo is Open for the demo, whose inputs/ folder is an output entry
+// too: --force replaces it, so it may hold only the demo's own files.
+func OpenDemo(out string, force bool, inputFiles []string) (*Dir, error) {
+	return open(out, force, nil, true, inputFiles)
+}
+
+// figureName matches the files the report writes into figures/, and the
+// hidden temporary files of an atomic write (package outfile) that a
+// killed report can leave.
+var figureName = regexp.MustCompile(`^((metrics_vs_area|roc_curves|extent_maps|model_minus_null|ring_steps(_[0-9]+)?)\.(pdf|svg|png)|\..+\.tmp-[0-9]+)$`)
+
+// foreign lists, as paths under --out, what the folders among names hold
+// that areasweep does not write there: in figures/ a name figureName does
+// not match, in the demo's inputs/ a name not among its files, and any
+// sub-folder. --force replaces such a folder as a whole, so these would
+// be deleted with it. staged, when not "", is the staging folder: an entry
+// the staged folder of the same name holds is areasweep's too.
+func (d *Dir) foreign(names []string, staged string) []string {
+	var found []string
+	for _, n := range names {
+		if n != "figures" && !(n == "inputs" && d.Demo) {
+			continue
+		}
+		entries, err := os.ReadDir(filepath.Join(d.abs, n))
+		if err != nil {
+			continue // not a folder, or absent: replaced as a whole entry
+		}
+		for _, e := range entries {
+			ours := !e.IsDir()
+			if ours && n == "figures" {
+				ours = figureName.MatchString(e.Name())
+			} else if ours {
+				ours = slices.Contains(d.demoInputs, e.Name())
+			}
+			if !ours && staged != "" {
+				if st, err := os.Lstat(filepath.Join(staged, n, e.Name())); err == nil && !st.IsDir() && !e.IsDir() {
+					ours = true
+				}
+			}
+			if !ours {
+				found = append(found, filepath.Join(d.Out, n, e.Name()))
+			}
+		}
+	}
+	return found
+}
+
+// foreignError is the message for foreign files in a folder --force
+// would replace.
+func foreignError(out string, found []string) error {
+	more := ""
+	if len(found) > 3 {
+		more = fmt.Sprintf(" and %d more", len(found)-3)
+		found = found[:3]
+	}
+	dir := filepath.Dir(found[0])
+	return fmt.Errorf("--out %s holds %s%s, not written by areasweep, in %s, which --force replaces as a whole; "+
+		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
+}
+
+func open(out string, force bool, inputs []string, demo bool, demoInputs []string) (*Dir, error) {
 	if out == "" {
 		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
-	d := &Dir{Out: filepath.Clean(out), force: force}
+	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
 		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
@@ -127,6 +195,9 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 		}
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
+		}
+		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 {
+			return nil, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
@@ -446,6 +517,15 @@ func (d *Dir) moveEntries() error {
 		for _, e := range staged {
 			replace = append(replace, e.Name())
 		}
+	}
+	// A file of the user's that reached a folder replaced as a whole
+	// during the run: nothing is replaced, as for a clash.
+	if found := d.foreign(replace, d.Stage); len(found) > 0 {
+		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		if err := os.Rename(d.Stage, keep); err != nil {
+			keep = d.Stage
+		}
+		return fmt.Errorf("%s, so nothing in it was replaced; the results are in %s", foreignError(d.Out, found), keep)
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {
