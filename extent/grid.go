@@ -591,7 +591,7 @@ func (g *Grid) SameAs(o *Grid) string {
 			break
 		}
 	}
-	if !g.srs.IsSame(o.srs) {
+	if !sameCRS(g, o) {
 		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))
 	}
 	return strings.Join(diffs, "; ")
