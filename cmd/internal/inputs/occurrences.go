@@ -229,6 +229,10 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-16 byte-order mark; "+
 			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
 	}
+	if head, _ := br.Peek(512); bytes.IndexByte(head, 0) >= 0 {
+		return nil, perr(0, "", fmt.Errorf("%w: it is a binary file%s, not a text table; "+
+			"give the occurrence table as CSV or tab-separated text (in a spreadsheet: save as \"CSV UTF-8\")", ErrEncoding, binaryKind(head)))
+	}
 
 	// Find the header line (the first non-blank one) to choose the delimiter.
 	// The lines read here are fed back to the CSV reader so that line
@@ -382,6 +386,28 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// binaryKind names the kind of binary file by its first bytes, as
+// " (a ... file)", or "" when it is not one a user is likely to give by
+// mistake.
+func binaryKind(head []byte) string {
+	for _, k := range []struct{ magic, what string }{
+		{"PK\x03\x04", "ZIP archive, such as an Excel .xlsx workbook or a zipped download"},
+		{"\xD0\xCF\x11\xE0", "legacy Excel .xls workbook"},
+		{"II*\x00", "TIFF image, such as a GeoTIFF raster"},
+		{"MM\x00*", "TIFF image, such as a GeoTIFF raster"},
+		{"II+\x00", "BigTIFF raster"},
+		{"MM\x00+", "BigTIFF raster"},
+		{"SQLite format 3\x00", "SQLite database, such as a GeoPackage"},
+		{"\x1f\x8b", "gzip archive"},
+		{"%PDF", "PDF document"},
+	} {
+		if bytes.HasPrefix(head, []byte(k.magic)) {
+			return " (a " + k.what + ")"
+		}
+	}
+	return ""
 }
 
 // tooLarge turns a size-limit error from the reader into a ParseError

@@ -92,6 +92,9 @@ func mustExist(what, path string) error {
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
 	}
+	if st.Mode().IsRegular() && st.Size() == 0 && what != "occurrences" { // the table reader says what an empty table needs
+		return fault.BadInput(fmt.Errorf("%s: %s is empty (0 bytes); it was probably cut off while being written, copied or downloaded: give the complete file", what, path))
+	}
 	return nil
 }
 
