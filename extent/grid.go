@@ -269,6 +269,12 @@ func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 	gt := g.GeoTransform
 	fc := (x - gt[0]) / gt[1]
 	fr := (y - gt[3]) / gt[5]
+	if g.Geographic && y == -90 && fr >= float64(g.Height) && math.Abs(gt[3]+float64(g.Height)*gt[5]+90) < 1e-9 {
+		// The South Pole on a grid that reaches it: nothing lies south of
+		// the bottom edge there, so it is in the last row (as the North
+		// Pole is in the first).
+		fr = float64(g.Height) - 0.5
+	}
 	if math.IsNaN(fc) || math.IsNaN(fr) || fc < 0 || fr < 0 || fc >= float64(g.Width) || fr >= float64(g.Height) {
 		return 0, 0, false
 	}
