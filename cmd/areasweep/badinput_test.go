@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer`)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.`)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -444,8 +444,13 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
 		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
 		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
-		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed"}, "", ""},
+		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
+		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},
+		{"demo seed out of range", []string{"demo", "--scenario-seed", "99999999999999999999"}, 2, []string{"--scenario-seed", "is out of range", "demo --help"}, "", ""},
+		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"report accepts 1 arg(s), received 2", "report --help"}, "", ""},
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
+		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
+		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},
 		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},
 		{"no occurrences", []string{"run", "--model", "m=" + f.model, "--region", f.region}, 2, []string{"--occurrences"}, "", ""},
 		{"out empty", append(f.run("--out", ""), "--quiet"), 2, []string{"--out is empty"}, "", filepath.Join(f.outs, "never")},

@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"runtime"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -18,6 +19,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
 	"areasweep/extent/place"
 	"areasweep/extent/vocab"
 	"areasweep/report"
@@ -84,6 +86,14 @@ func (s *Study) openGrid() error {
 	return nil
 }
 
+// crsAdvice says how to write a CRS, suggesting EPSG:N for a bare number.
+func crsAdvice(crs string) string {
+	if _, err := strconv.ParseUint(strings.TrimSpace(crs), 10, 32); err == nil {
+		return fmt.Sprintf("an EPSG code is written with its authority: EPSG:%s", strings.TrimSpace(crs))
+	}
+	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
+}
+
 func mustExist(what, path string) error {
 	st, err := os.Stat(path)
 	if err != nil {
@@ -117,7 +127,14 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	if o.OccurrencesCRS != "" {
 		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
 		if err != nil {
-			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %w", o.OccurrencesCRS, err))
+			cause := gdalmsg.Cause(err.Error())
+			if strings.Contains(cause, "ogr error") { // OGRERR_UNSUPPORTED_SRS's number says nothing more
+				cause = ""
+			} else {
+				cause = " (" + cause + ")"
+			}
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows%s; %s",
+				o.OccurrencesCRS, cause, crsAdvice(o.OccurrencesCRS)))
 		}
 		geographic = sr.Geographic()
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
