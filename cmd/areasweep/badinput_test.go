@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.`)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: `)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -385,6 +385,12 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		out, _ := json.Marshal(m)
 		return string(out)
 	}()
+	rdShard := reportDir("report-shard", "")
+	os.WriteFile(filepath.Join(rdShard, "shard-1-of-2.aspf"), []byte("ASPF"), 0o644)
+	rdFile := filepath.Join(reportDir("report-file", ""), "notes.txt")
+	os.WriteFile(rdFile, []byte("mine"), 0o644)
+	rdEmptyObject := reportDir("report-empty-object", `{}`)
+	rdArray := reportDir("report-array", `[1, 2]`)
 	rdNone := reportDir("report-none", "")
 	rdAUC := reportDir("report-auc", badAUC)
 	rdBroken := reportDir("report-broken", `{"schema_version": 1, "scores": [`)
@@ -541,6 +547,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"report AUC -5", []string{"report", rdAUC}, 2, []string{"results.json", ".auc: -5 is outside [0, 1]"}, "", rdAUC},
 		{"report broken JSON", []string{"report", rdBroken}, 2, []string{"results.json", "not a results file"}, "", rdBroken},
 		{"report other schema", []string{"report", rdSchema}, 2, []string{"schema_version 99"}, "", rdSchema},
+		{"report on a shard's folder", []string{"report", rdShard}, 2, []string{"shard-1-of-2.aspf", "merge the shards first"}, "", rdShard},
+		{"report on a file", []string{"report", rdFile}, 2, []string{"notes.txt is a file", "folder holding results.json"}, "", filepath.Dir(rdFile)},
+		{"report on an empty object", []string{"report", rdEmptyObject}, 2, []string{"results.json", "not a results file written by areasweep", "no schema_version"}, "", rdEmptyObject},
+		{"report on a JSON array", []string{"report", rdArray}, 2, []string{"results.json", "holds a JSON array, not an object"}, "", rdArray},
 		{"demo workers huge", []string{"demo", "--workers", "100000"}, 2, []string{"--workers is 100000"}, "", ""},
 	}
 }
