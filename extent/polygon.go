@@ -70,7 +70,11 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	var warns []string
 	ds, err := godal.Open(path, godal.VectorOnly())
 	if err != nil {
-		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
+		hint := ""
+		if strings.HasSuffix(strings.ToLower(path), ".zip") {
+			hint = "; a zipped shapefile must be unzipped first: give the path of its .shp"
+		}
+		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, gdalmsg.Cause(err.Error()), hint)
 	}
 	defer ds.Close()
 	layers := ds.Layers()
@@ -91,6 +95,18 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
 	defer lsr.Close()
+	// Z or M coordinates (a KML with altitudes, a PolygonZ shapefile) and
+	// curved geometries (an ArcGIS export's CurvePolygon or MultiSurface)
+	// are read as their plane, linear equivalent: a copy of the layer in
+	// memory, as ogr2ogr -dim XY -nlt CONVERT_TO_LINEAR makes it.
+	if needsFlattening(layer) {
+		flat, err := ds.VectorTranslate("", []string{"-dim", "XY", "-nlt", "CONVERT_TO_LINEAR", layer.Name()}, godal.Memory)
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s layer %q: its 3D or curved geometries could not be made plane and linear (%s); save the layer as 2D polygons in a GIS", path, layer.Name(), gdalmsg.Cause(err.Error()))
+		}
+		defer flat.Close()
+		ds, layer = flat, flat.Layers()[0]
+	}
 	if err := checkFeatureTypes(path, layer); err != nil {
 		return nil, warns, err
 	}
@@ -315,6 +331,32 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 		f.Close()
 		if msg != "" {
 			return fmt.Errorf("extent: %s feature %d %s; areasweep needs polygon areas: remove or fix the feature in a GIS", path, n, msg)
+		}
+	}
+}
+
+// needsFlattening reports whether a feature of the layer has Z or M
+// coordinates or a curved geometry type (OGR's geometry type codes: the
+// 2.5D flag 0x80000000, ISO codes 1000 and up for Z, M and ZM, and 8 to 12
+// for the curve types), which the plane, linear reading of shapeOf does
+// not take.
+func needsFlattening(layer godal.Layer) bool {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for {
+		f := layer.NextFeature()
+		if f == nil {
+			return false
+		}
+		flat := true
+		if g := f.Geometry(); !noGeometry(g) {
+			t := uint32(g.Type())
+			base := (t & 0x7fffffff) % 1000
+			flat = t&0x80000000 == 0 && t&0x7fffffff < 1000 && (base < 8 || base > 12)
+		}
+		f.Close()
+		if !flat {
+			return true
 		}
 	}
 }

@@ -274,6 +274,9 @@ func flagColumn(msg string) string {
 // its column.
 func missingInput(o *pipeline.Options) (string, error) {
 	check := func(col, path string) error {
+		if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+			return fmt.Errorf("%s is a GDAL virtual path or a URL; areasweep reads local files only: download or unzip the file and give its path", path)
+		}
 		st, err := os.Stat(path)
 		if err != nil {
 			return fmt.Errorf("%s does not exist or cannot be read; check the path", path)

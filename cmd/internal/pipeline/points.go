@@ -95,6 +95,10 @@ func crsAdvice(crs string) string {
 }
 
 func mustExist(what, path string) error {
+	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
+			"download or unzip the file and give its path", what, path))
+	}
 	st, err := os.Stat(path)
 	if err != nil {
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))

@@ -1,0 +1,83 @@
+package extent
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// TestRegionIn3DOrCurved: polygons with Z or M coordinates (a KML with
+// altitudes, a PolygonZ shapefile) and curved types (CurvePolygon,
+// MultiSurface, as ArcGIS exports write them) are read as their plane,
+// linear equivalent: the same cells as the plain 2D polygon, and for a
+// true arc a disc of about the right number of cells.
+func TestRegionIn3DOrCurved(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	cells := func(t *testing.T, path string) int {
+		t.Helper()
+		s, _, err := ReadShape(path, g)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := 0
+		Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+		return n
+	}
+	gpkg := func(name string, wkts ...string) string {
+		p := filepath.Join(dir, name)
+		ds, err := godal.CreateVector(godal.GeoPackage, p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sr, _ := godal.NewSpatialRefFromEPSG(4326)
+		l, err := ds.CreateLayer("region", sr, godal.GTUnknown)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, w := range wkts {
+			geom, err := godal.NewGeometryFromWKT(w, sr)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, err := l.NewFeature(geom); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	square := "0.55 0.55, 3.05 0.55, 3.05 2.95, 0.55 2.95, 0.55 0.55"
+	plain := filepath.Join(dir, "plain.geojson")
+	os.WriteFile(plain, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.55,0.55],[3.05,0.55],[3.05,2.95],[0.55,2.95],[0.55,0.55]]]}}]}`), 0o644)
+	want := cells(t, plain)
+	z := filepath.Join(dir, "z.geojson")
+	os.WriteFile(z, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.55,0.55,120],[3.05,0.55,80],[3.05,2.95,0],[0.55,2.95,5],[0.55,0.55,120]]]}}]}`), 0o644)
+	for name, path := range map[string]string{
+		"GeoJSON with heights":  z,
+		"PolygonZ":              gpkg("z.gpkg", "POLYGON Z (("+"0.55 0.55 1, 3.05 0.55 2, 3.05 2.95 3, 0.55 2.95 4, 0.55 0.55 1"+"))"),
+		"PolygonM":              gpkg("m.gpkg", "POLYGON M (("+"0.55 0.55 1, 3.05 0.55 2, 3.05 2.95 3, 0.55 2.95 4, 0.55 0.55 1"+"))"),
+		"MultiSurface":          gpkg("ms.gpkg", "MULTISURFACE ((("+square+")))"),
+		"CurvePolygon of lines": gpkg("cp.gpkg", "CURVEPOLYGON (("+square+"))"),
+	} {
+		t.Run(name, func(t *testing.T) {
+			if got := cells(t, path); got != want {
+				t.Errorf("%d cells, want %d as for the 2D polygon", got, want)
+			}
+		})
+	}
+	t.Run("CurvePolygon of arcs", func(t *testing.T) {
+		// A circle of radius 1.5 degrees about (2, 2): pi r^2 / 0.01 =
+		// 707 cells of 0.1 degree; the edge cells decide within a few
+		// per cent.
+		n := cells(t, gpkg("arc.gpkg", "CURVEPOLYGON (CIRCULARSTRING (0.5 2, 3.5 2, 0.5 2))"))
+		if want := math.Pi * 1.5 * 1.5 / 0.01; math.Abs(float64(n)-want) > 0.03*want {
+			t.Errorf("%d cells, want about %.0f", n, want)
+		}
+	})
+}
