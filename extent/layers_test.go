@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/airbusgeo/godal"
@@ -15,6 +16,7 @@ import (
 // linear equivalent: the same cells as the plain 2D polygon, and for a
 // true arc a disc of about the right number of cells.
 func TestRegionIn3DOrCurved(t *testing.T) {
+	Register()
 	dir := t.TempDir()
 	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
 	cells := func(t *testing.T, path string) int {
@@ -80,4 +82,56 @@ func TestRegionIn3DOrCurved(t *testing.T) {
 			t.Errorf("%d cells, want about %.0f", n, want)
 		}
 	})
+}
+
+// TestPolygonLayerAfterOthers: of a GeoPackage whose first layer holds
+// points, the first polygon layer is read (with a warning naming it),
+// its invalid feature repaired in that layer, not in the first.
+func TestPolygonLayerAfterOthers(t *testing.T) {
+	Register()
+	p := filepath.Join(t.TempDir(), "study.gpkg")
+	ds, err := godal.CreateVector(godal.GeoPackage, p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr, _ := godal.NewSpatialRefFromEPSG(4326)
+	for _, l := range []struct {
+		name string
+		typ  godal.GeometryType
+		wkt  string
+	}{
+		{"a_points", godal.GTPoint, "POINT (1 1)"},
+		{"b_lines", godal.GTLineString, "LINESTRING (1 1, 2 2)"},
+		// A bow-tie: invalid, repaired into two triangles.
+		{"c_region", godal.GTPolygon, "POLYGON ((0.55 0.55, 3.05 2.95, 3.05 0.55, 0.55 2.95, 0.55 0.55))"},
+	} {
+		lay, err := ds.CreateLayer(l.name, sr, l.typ)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g, _ := godal.NewGeometryFromWKT(l.wkt, sr)
+		if _, err := lay.NewFeature(g); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	s, warns, err := ReadShape(p, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+	if n == 0 {
+		t.Error("the region holds no cell")
+	}
+	named := false
+	for _, w := range warns {
+		named = named || strings.Contains(w, `"c_region"`) && strings.Contains(w, "a_points, b_lines, c_region")
+	}
+	if !named {
+		t.Errorf("no warning names the layer read and the others: %q", warns)
+	}
 }

@@ -81,9 +81,31 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if len(layers) == 0 {
 		return nil, nil, fmt.Errorf("extent: %s has no layer", path)
 	}
+	// Of several layers, the first whose declared geometry type is an
+	// area (a GeoPackage often holds the points or lines of the same
+	// study beside its polygons), else the first.
 	layer := layers[0]
 	if len(layers) > 1 {
-		warns = append(warns, fmt.Sprintf("%s has %d layers; using the first, %q", path, len(layers), layer.Name()))
+		which := "the first"
+		for i, l := range layers {
+			if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
+				if i > 0 {
+					which = "the first of polygons"
+				}
+				layer = l
+				break
+			}
+		}
+		var names []string
+		for i, l := range layers {
+			if i == 8 {
+				names = append(names, fmt.Sprintf("and %d more", len(layers)-8))
+				break
+			}
+			names = append(names, l.Name())
+		}
+		warns = append(warns, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
+			path, len(layers), strings.Join(names, ", "), which, layer.Name(), path))
 	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
@@ -119,7 +141,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
 	// buffer would drop from a bow-tie, on a copy of the layer in memory.
 	if bad := invalidFeatures(layer); len(bad) > 0 {
-		fixed, err := ds.VectorTranslate("", []string{"-makevalid"}, godal.Memory)
+		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
 			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, bad, gdalmsg.Cause(err.Error()))
 		}
