@@ -435,11 +435,16 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 // mapping NAME: PATH (kept in file order). Paths are resolved against dir.
 func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
 	example := fmt.Sprintf("write for example\n    %s:\n      - gbm=models/gbm.tif\n      - glm=models/glm.tif", key)
+	seen := map[string]int{}
 	one := func(n *yaml.Node, text string) (string, error) {
 		name, p, err := ParseNamedPath(text)
 		if err != nil {
 			return "", &lineErr{n.Line, fmt.Errorf("%w: %w", ErrBadValue, noPrefix{err})}
 		}
+		if first, dup := seen[name]; dup {
+			return "", &lineErr{n.Line, badValue("the name %q is already given at line %d; give each its own name", name, first)}
+		}
+		seen[name] = n.Line
 		return name + "=" + resolvePath(dir, p), nil
 	}
 	switch v.Kind {

@@ -152,6 +152,8 @@ func TestParseStudyErrors(t *testing.T) {
 		{"unknown key no suggestion", "colour: red\n", ErrUnknownKey, 1, "colour", []string{"allowed keys are"}},
 		{"unknown key case", "Seed: 1\n", ErrUnknownKey, 1, "Seed", []string{`did you mean "seed"?`}},
 		{"duplicate key", "seed: 1\nout: o\nseed: 2\n", ErrDuplicateKey, 3, "seed", []string{"already given at line 1"}},
+		{"model name twice in a mapping", "model:\n  good: a.tif\n  good: b.tif\n", ErrBadValue, 3, "model", []string{`the name "good" is already given at line 2`}},
+		{"model name twice in a list", "model: [good=a.tif, coarse=c.tif,\n  good=b.tif]\n", ErrBadValue, 2, "model", []string{`"good" is already given at line 1`}},
 		{"text for int", "iterations: many\n", ErrBadValue, 1, "iterations", []string{`"many" is not a whole number`, "iterations: 1000"}},
 		{"quoted int", "iterations: \"1000\"\n", ErrBadValue, 1, "iterations", []string{"(remove the quotes)"}},
 		{"quoted bool", "no-thin: 'true'\n", ErrBadValue, 1, "no-thin", []string{"(remove the quotes)"}},
