@@ -106,7 +106,7 @@ var equalAreaMethods = []string{
 // OpenGrid reads the grid of the raster at path (first band).
 func OpenGrid(path string) (*Grid, error) {
 	Register()
-	ds, err := godal.Open(path, godal.RasterOnly())
+	ds, err := OpenRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}

@@ -296,6 +296,47 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		}
 	}
 
+	// A model whose cells without data are marked by an alpha band (as
+	// gdalwarp -dstalpha writes a Float32 raster) or by an internal mask,
+	// with no nodata value: those cells hold 0, which would be scored.
+	masked := func(name string, alpha bool) string {
+		p := filepath.Join(f.dir, name)
+		bands := 1
+		if alpha {
+			bands = 2
+		}
+		ds, err := godal.Create(godal.GTiff, p, bands, godal.Float32, f.w, f.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(gt)
+		ds.SetProjection(wgs)
+		vals, valid := make([]float32, f.w*f.h), make([]float32, f.w*f.h)
+		mask := make([]byte, f.w*f.h)
+		for i, v := range f.vals {
+			if !math.IsNaN(v) {
+				vals[i], valid[i], mask[i] = float32(v), 255, 255
+			}
+		}
+		ds.Bands()[0].Write(0, 0, vals, f.w, f.h)
+		if alpha {
+			ds.Bands()[1].SetColorInterp(godal.CIAlpha)
+			ds.Bands()[1].Write(0, 0, valid, f.w, f.h)
+		} else {
+			m, err := ds.CreateMaskBand(0x02) // GMF_PER_DATASET
+			if err != nil {
+				t.Fatal(err)
+			}
+			m.Write(0, 0, mask, f.w, f.h)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	alphaModel := masked("alpha.tif", true)
+	maskModel := masked("masked.tif", false)
+
 	// Vector layers.
 	pointLayer := f.file("point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, ``))
 	lineLayer := f.file("line.geojson", polygonJSON(`{"type":"LineString","coordinates":[[14,43],[15,44]]}`, ``))
@@ -510,11 +551,14 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model of 0 bytes", f.withModel(f.file("zero.tif", "")), 2, []string{"model m", "zero.tif", "empty (0 bytes)"}, "", ""},
 		{"region of 0 bytes", f.withRegion(f.file("zero.gpkg", "")), 2, []string{"region", "zero.gpkg", "empty (0 bytes)"}, "", ""},
 		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
+		{"model: an ASCII grid without .prj", f.withModel(f.file("noprj.asc", "ncols 2\nnrows 2\nxllcorner 10\nyllcorner 40\ncellsize 0.25\n1 2\n3 4\n")), 2, []string{"noprj.asc", "no coordinate reference system", "noprj.prj", "gdal_translate -a_srs"}, "", ""},
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
 		// A later pass finds it itself (no range read before the pass).
 		{"null all no data", f.run("--null", "n="+allNoData), 2, []string{"model n", "allnodata.tif", "every cell", "no data"}, "", ""},
+		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
+		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"model n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
 		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 

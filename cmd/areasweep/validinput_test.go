@@ -16,7 +16,8 @@ import (
 // byte): a GBIF-style tab-separated download whose text holds bare
 // quotes, inputs in a folder whose name holds spaces and non-ASCII
 // letters, and a second model as an ESRI ASCII grid whose .prj writes
-// WGS84 otherwise than the GeoTIFF's EPSG:4326. It also re-renders the
+// WGS84 otherwise than the GeoTIFF's EPSG:4326, or as an ESRI BIL whose
+// header, nodata and CRS are in sidecar files. It also re-renders the
 // report given the results.json file rather than its folder.
 func TestUnusualValidInputs(t *testing.T) {
 	s := newSmallStudy(t)
@@ -93,6 +94,30 @@ func TestUnusualValidInputs(t *testing.T) {
 			t.Fatalf("the ASCII grid's .prj is not written in ESRI's words: %q, %v", prj, err)
 		}
 		got := run(t, filepath.Join(outs, "asc"), "--model", "m="+s.model, "--model", "sq="+asc, "--occurrences", s.occ, "--region", s.region)
+		if !bytes.Equal(got, want) {
+			t.Error("scores.csv differs from the run on the GeoTIFF")
+		}
+	})
+
+	t.Run("ESRI BIL with its .hdr and .prj", func(t *testing.T) {
+		src, err := godal.Open(s.model2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bil := filepath.Join(s.dir, "model2.bil")
+		ds, err := src.Translate(bil, []string{"-of", "EHdr"})
+		src.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+		os.Remove(bil + ".aux.xml")
+		for _, side := range []string{"model2.hdr", "model2.prj"} {
+			if _, err := os.Stat(filepath.Join(s.dir, side)); err != nil {
+				t.Fatalf("no %s beside the .bil: %v", side, err)
+			}
+		}
+		got := run(t, filepath.Join(outs, "bil"), "--model", "m="+s.model, "--model", "sq="+bil, "--occurrences", s.occ, "--region", s.region)
 		if !bytes.Equal(got, want) {
 			t.Error("scores.csv differs from the run on the GeoTIFF")
 		}

@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"runtime"
 	"strconv"
 	"strings"
@@ -68,7 +69,21 @@ func (s *Study) openGrid() error {
 	for i, m := range s.models {
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
+			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
+				// gdal_edit.py records the CRS of other formats in an
+				// .aux.xml file, which areasweep does not read.
+				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + m.Path + " " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".tif"
+				if ext == ".asc" {
+					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
+				}
+				return fault.BadInput(fmt.Errorf("model %s: %s has no coordinate reference system; %s", m.Name, m.Path, hint))
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+		}
+		if msg := maskProblem(m.Path); msg != "" {
+			g.Close()
+			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
+				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, m.Path, strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif"))
 		}
 		if i == 0 {
 			s.grid = g
@@ -84,6 +99,43 @@ func (s *Study) openGrid() error {
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
 	return nil
+}
+
+// maskProblem says how the first band of the raster at path marks cells
+// without data other than by a nodata value (an alpha band, a .msk file
+// or an internal mask, as gdalwarp -dstalpha and some exports write
+// them), or "" when it does not: GDAL's mask flags are then all-valid or
+// nodata.
+func maskProblem(path string) string {
+	ds, err := extent.OpenRaster(path)
+	if err != nil {
+		return "" // OpenGrid has read it; a later read reports its own error
+	}
+	defer ds.Close()
+	bands := ds.Bands()
+	if len(bands) == 0 {
+		return ""
+	}
+	const allValid, alpha, nodata = 0x01, 0x04, 0x08 // GMF_ALL_VALID, GMF_ALPHA, GMF_NODATA
+	f := bands[0].MaskFlags()
+	if f&nodata != 0 {
+		return "" // a nodata value: areasweep's own rule
+	}
+	// GDAL takes only a Byte or UInt16 alpha band as the mask; gdalwarp
+	// -dstalpha writes a Float32 raster's alpha as Float32.
+	for _, b := range bands[1:] {
+		if b.ColorInterp() == godal.CIAlpha {
+			return "marks its cells without data by an alpha band"
+		}
+	}
+	switch {
+	case f&allValid != 0:
+		return ""
+	case f&alpha != 0:
+		return "marks its cells without data by an alpha band"
+	default:
+		return "marks its cells without data by a mask (a .msk file or a mask inside the file)"
+	}
 }
 
 // crsAdvice says how to write a CRS, suggesting EPSG:N for a bare number.
