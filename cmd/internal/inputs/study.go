@@ -296,9 +296,17 @@ func pathValue(key string, v *yaml.Node, dir string) (*string, error) {
 	return &p, nil
 }
 
-// resolvePath joins a relative path to dir. Absolute paths, URLs and GDAL
-// virtual paths (/vsi...) are returned unchanged.
+// resolvePath joins a relative path to dir. A path starting with ~/ is
+// in the home folder, as a shell would read it (a study file or table is
+// not read by a shell, and a folder named ~ beside it is never meant).
+// Absolute paths, URLs and GDAL virtual paths (/vsi...) are returned
+// unchanged.
 func resolvePath(dir, p string) string {
+	if p == "~" || strings.HasPrefix(p, "~/") {
+		if home, err := os.UserHomeDir(); err == nil {
+			return filepath.Join(home, p[1:])
+		}
+	}
 	if dir == "" || p == "" || filepath.IsAbs(p) || strings.Contains(p, "://") || strings.HasPrefix(p, "/vsi") {
 		return p
 	}

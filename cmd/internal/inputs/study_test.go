@@ -267,6 +267,27 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 	}
 
+	t.Run("tilde is the home folder", func(t *testing.T) {
+		home := t.TempDir()
+		t.Setenv("HOME", home)
+		p := filepath.Join(sub, "home.yaml")
+		if err := os.WriteFile(p, []byte("occurrences: ~/data/occ.csv\nmodel:\n  m: ~/m.tif\nout: ~\nregion: ./~x/r.gpkg\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		st, err := LoadStudy(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := &Study{
+			"occurrences": filepath.Join(home, "data", "occ.csv"),
+			"model":       []string{"m=" + filepath.Join(home, "m.tif")},
+			"region":      filepath.Join(sub, "~x", "r.gpkg"),
+		}
+		// out: ~ is YAML's null: absent.
+		if !reflect.DeepEqual(st, want) {
+			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
+		}
+	})
 	t.Run("error names path", func(t *testing.T) {
 		bad := filepath.Join(sub, "bad.yaml")
 		if err := os.WriteFile(bad, []byte("iterations: 10\nbogus: 1\n"), 0o644); err != nil {
