@@ -135,3 +135,25 @@ func TestPolygonLayerAfterOthers(t *testing.T) {
 		t.Errorf("no warning names the layer read and the others: %q", warns)
 	}
 }
+
+// TestUnitFieldIgnoresCase: the ecoregion id field is found whatever its
+// case when only one field has that name ignoring case (a shapefile's DBF
+// holds ID, typed id), and refused with the list of fields otherwise.
+func TestUnitFieldIgnoresCase(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	path := writeGeoJSON(t, dir, "units.geojson", []string{"a", "b"}, [][][2]float64{
+		{{0.5, 0.5}, {1.5, 0.5}, {1.5, 1.5}, {0.5, 1.5}, {0.5, 0.5}},
+		{{2.5, 2.5}, {3.5, 2.5}, {3.5, 3.5}, {2.5, 3.5}, {2.5, 2.5}},
+	})
+	units, _, err := ReadUnits(path, "ID", g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(units) != 2 || units[0].ID != "a" || units[1].ID != "b" {
+		t.Errorf("units %v, want a and b", units)
+	}
+	if _, _, err := ReadUnits(path, "name", g); err == nil || !strings.Contains(err.Error(), `no field "name"`) {
+		t.Errorf("a field no name matches: %v", err)
+	}
+}

@@ -133,6 +133,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		return nil, warns, err
 	}
 	if field != "" {
+		field = fieldName(layer, field)
 		if err := checkNullIDs(ds, path, layer, field); err != nil {
 			return nil, warns, err
 		}
@@ -406,6 +407,37 @@ func polygonProblem(g *godal.Geometry) string {
 		return ""
 	}
 	return "is a " + strings.ToLower(g.Name()) + ", not a polygon"
+}
+
+// fieldName returns the layer's field named name, or, when it has none,
+// its one field whose name differs only in case (a shapefile's DBF holds
+// ECO_NAME, typed eco_name; OGR's own SQL ignores case too). Otherwise
+// name itself, which the reader then reports with the list of fields.
+func fieldName(layer godal.Layer, name string) string {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	f := layer.NextFeature()
+	if f == nil {
+		return name
+	}
+	defer f.Close()
+	fields := f.Fields()
+	if _, ok := fields[name]; ok {
+		return name
+	}
+	found := ""
+	for k := range fields {
+		if strings.EqualFold(k, name) {
+			if found != "" {
+				return name // two spellings: say which fields there are
+			}
+			found = k
+		}
+	}
+	if found == "" {
+		return name
+	}
+	return found
 }
 
 // checkNullIDs refuses a unit layer with features whose id field is NULL:
