@@ -286,6 +286,22 @@ func (p *batchParser) parseYAML(data []byte) {
 		p.add(root.Line, "", "", fmt.Errorf("%w: %s", ErrBatchSyntax, shape))
 		return
 	}
+	// A study file given as a table: its keys are study keys, and none
+	// is settings or studies. One message says so instead of one per key.
+	isStudy, hasTableKey := false, false
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		switch k := deref(root.Content[i]).Value; {
+		case k == "settings" || k == "studies":
+			hasTableKey = true
+		case contains(studyKeys, k):
+			isStudy = true
+		}
+	}
+	if isStudy && !hasTableKey {
+		p.add(root.Line, "", "", fmt.Errorf("%w: this is a study file (one study's key: value lines), not a study table; "+
+			"run it with areasweep run --study FILE, or %s (areasweep batch --template prints an example)", ErrBatchSyntax, shape))
+		return
+	}
 	var studies *yaml.Node
 	for i := 0; i+1 < len(root.Content); i += 2 {
 		k, v := deref(root.Content[i]), deref(root.Content[i+1])

@@ -211,6 +211,7 @@ func TestBatchRefuses(t *testing.T) {
 		{"yaml syntax", "studies: [\n", true, ErrBatchSyntax, "not valid YAML"},
 		{"yaml empty", "", true, ErrBatchSyntax, "settings:"},
 		{"yaml no studies", "settings: {iterations: 5}\n", true, ErrBatchEmpty, "no study"},
+		{"yaml study file", "model:\n  - good=m.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 5\n", true, ErrBatchSyntax, "this is a study file"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -90,7 +90,31 @@ func LoadStudy(path string) (*Study, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
 	}
+	if line := tableHeader(data); line > 0 {
+		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: this is a study table (a header id,... and one row per study), not a study file; "+
+			"run it with areasweep batch %s --out DIR", ErrStudySyntax, path)}
+	}
 	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))
+}
+
+// tableHeader returns the line of a study table's header (the first line
+// that is neither blank nor a '#' comment, starting with id and a comma,
+// semicolon or tab), or 0: a table given to --study.
+func tableHeader(data []byte) int {
+	for i, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		l = strings.TrimSpace(l)
+		if l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		l = strings.ToLower(strings.Trim(l, `"`))
+		if rest, ok := strings.CutPrefix(l, "id"); ok {
+			if rest = strings.TrimLeft(rest, `"`); rest != "" && strings.ContainsRune(",;\t", rune(rest[0])) {
+				return i + 1
+			}
+		}
+		return 0
+	}
+	return 0
 }
 
 // ParseStudy reads a study file from r; name is used in messages and

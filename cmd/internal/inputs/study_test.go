@@ -288,6 +288,19 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 		}
 	})
+	t.Run("a study table given as a study file", func(t *testing.T) {
+		for i, body := range []string{"# iterations: 5\nid,model,occurrences,region\na,m=x.tif,o.csv,r.gpkg\n", "\ufeff\"id\";\"model\"\n"} {
+			p := filepath.Join(sub, fmt.Sprintf("table%d.csv", i))
+			os.WriteFile(p, []byte(body), 0o644)
+			_, err := LoadStudy(p)
+			checkStudyError(t, err, ErrStudySyntax, p, 2-i, "", []string{"this is a study table", "areasweep batch " + p})
+		}
+		p := filepath.Join(sub, "id.yaml")
+		os.WriteFile(p, []byte("id: 5\n"), 0o644)
+		if _, err := LoadStudy(p); !errors.Is(err, ErrUnknownKey) {
+			t.Errorf("a study file with the key id: %v, want an unknown key", err)
+		}
+	})
 	t.Run("error names path", func(t *testing.T) {
 		bad := filepath.Join(sub, "bad.yaml")
 		if err := os.WriteFile(bad, []byte("iterations: 10\nbogus: 1\n"), 0o644); err != nil {
