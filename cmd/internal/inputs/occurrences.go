@@ -172,6 +172,19 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 	return recs, err
 }
 
+// crReader turns every carriage return into a line feed.
+type crReader struct{ r io.Reader }
+
+func (c crReader) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	for i, b := range p[:n] {
+		if b == '\r' {
+			p[i] = '\n'
+		}
+	}
+	return n, err
+}
+
 // tabQuoteError marks a quoting error in a tab-separated table, which
 // ParseOccurrences answers by reading the table again without quoting.
 type tabQuoteError struct {
@@ -221,6 +234,15 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
+	// A table whose lines end in a carriage return alone (Excel's "CSV
+	// (Macintosh)", classic Mac OS) holds no line feed: its returns are
+	// read as line ends.
+	pr := bufio.NewReaderSize(r, 64<<10)
+	if head, _ := pr.Peek(64 << 10); bytes.IndexByte(head, '\n') < 0 && bytes.IndexByte(head, '\r') >= 0 {
+		r = crReader{pr}
+	} else {
+		r = pr
+	}
 	lim := newLimitedReader(r, name, MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {

@@ -52,6 +52,9 @@ func okCases() []okCase {
 		{name: "utf8 bom", in: bom + "lon,lat,role\n1.5,2.5,train\n-3,4,test\n", geographic: true, want: twoRecs},
 		{name: "bom semicolon", in: bom + "lat;lon;role\n2,5;1,5;train\n4;-3;test\n", geographic: true, want: twoRecs},
 		{name: "crlf line ends", in: "lon,lat,role\r\n1.5,2.5,train\r\n-3,4,test\r\n", geographic: true, want: twoRecs},
+		{name: "carriage returns alone (CSV Macintosh)", in: "lon,lat,role\r1.5,2.5,train\r-3,4,test\r", geographic: true, want: twoRecs},
+		{name: "carriage returns alone, quoted cell and a blank line", in: "lon;lat;role;note\r1,5;2,5;train;\"a;b\"\r\r-3;4;test;c", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "no final newline", in: "lon,lat,role\n1.5,2.5,train\n-3,4,test", geographic: true, want: twoRecs},
 		{name: "spaces after commas", in: "lon, lat, role\n1.5, 2.5, train\n-3, 4, test\n", geographic: true, want: twoRecs},
 		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true, want: twoRecs},
@@ -363,5 +366,29 @@ func BenchmarkParseOccurrences(b *testing.B) {
 				}
 			}
 		})
+	}
+}
+
+// TestCarriageReturnsOnlyLargeTable: a table over MaxLineBytes whose lines
+// end in carriage returns alone reads line by line (no "line longer than"
+// refusal), with physical line numbers.
+func TestCarriageReturnsOnlyLargeTable(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("lon,lat,role\r")
+	n := 0
+	for b.Len() <= MaxLineBytes+1000 {
+		role := "train"
+		if n%2 == 1 {
+			role = "test"
+		}
+		fmt.Fprintf(&b, "%d.25,%d.5,%s\r", n%170, n%80, role)
+		n++
+	}
+	recs, err := ParseOccurrences(strings.NewReader(b.String()), "mac.csv", true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != n || recs[n-1].Line != n+1 || recs[n-1].X != float64((n-1)%170)+0.25 {
+		t.Fatalf("%d records, last %+v; want %d, the last on line %d", len(recs), recs[len(recs)-1], n, n+1)
 	}
 }
