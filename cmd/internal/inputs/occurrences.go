@@ -514,11 +514,18 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 			*tg.dst = column{index: i, name: name}
 		}
 	}
-	seen := make([]string, len(hdr))
+	// At most 12 fields are quoted (a GBIF download has some 250), each
+	// cut as shown() cuts cells.
+	const maxFields = 12
+	var seen []string
 	for i, h := range hdr {
-		seen[i] = strings.TrimSpace(h)
+		if i == maxFields {
+			seen = append(seen, fmt.Sprintf("and %d more", len(hdr)-maxFields))
+			break
+		}
+		seen = append(seen, shown(strings.TrimSpace(h)))
 	}
-	foundHeader := fmt.Sprintf("the header read as %d %s-separated fields %q", len(hdr), delimiterName(delim), seen)
+	foundHeader := fmt.Sprintf("the header read as %d %s-separated fields [%s]", len(hdr), delimiterName(delim), strings.Join(seen, " "))
 	if !found[0] || !found[1] {
 		var missing string
 		switch {
