@@ -279,6 +279,10 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return nil, perr(0, "", fmt.Errorf("%w: the file is empty; write a header line "+
 			"(for example lon,lat,role) and one line per occurrence below it", ErrNoRecords))
 	}
+	if t := bytes.TrimSpace(header); len(t) > 0 && (t[0] == '{' || t[0] == '[') {
+		return nil, perr(0, "", fmt.Errorf("%w: it is JSON (GeoJSON?), not a delimited table; write the points as CSV with their coordinates "+
+			"and a role column, e.g. ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv %s, then add role", ErrNoCoordinates, name))
+	}
 	delim := detectDelimiter(header)
 	if plain && delim == '\t' {
 		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
@@ -416,6 +420,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 func binaryKind(head []byte) string {
 	for _, k := range []struct{ magic, what string }{
 		{"PK\x03\x04", "ZIP archive, such as an Excel .xlsx workbook or a zipped download"},
+		{"\x00\x00\x27\x0a", "shapefile: convert its points with ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv FILE.shp and add a role column"},
 		{"\xD0\xCF\x11\xE0", "legacy Excel .xls workbook"},
 		{"II*\x00", "TIFF image, such as a GeoTIFF raster"},
 		{"MM\x00*", "TIFF image, such as a GeoTIFF raster"},

@@ -145,6 +145,8 @@ func errCases() []errCase {
 		{name: "utf16 be", in: "\xFE\xFF\x00l\x00o", is: ErrEncoding, line: 1},
 		{name: "GeoTIFF", in: "II*\x00\b\x00\x00\x00\x14\x00\x00\x01\x03\x00,x", is: ErrEncoding, contains: []string{"binary file", "GeoTIFF", "CSV"}},
 		{name: "Excel workbook", in: "PK\x03\x04\x14\x00\x06\x00lon,lat,role", is: ErrEncoding, contains: []string{"Excel .xlsx", "CSV UTF-8"}},
+		{name: "shapefile", in: "\x00\x00\x27\x0a\x00\x00", is: ErrEncoding, contains: []string{"shapefile", "ogr2ogr -f CSV"}},
+		{name: "GeoJSON", in: "\n{\"type\": \"FeatureCollection\",\n\"features\": []}\n", is: ErrNoCoordinates, contains: []string{"JSON (GeoJSON?)", "GEOMETRY=AS_XY"}},
 		{name: "GeoPackage", in: "SQLite format 3\x00\x10\x00", is: ErrEncoding, contains: []string{"GeoPackage"}},
 		{name: "NUL bytes after a text header", in: "lon,lat,role\n1,2,train\x00\x00\n", is: ErrEncoding, contains: []string{"binary file, not a text table"}},
 		{name: "empty file", in: "", is: ErrNoRecords, contains: []string{"file is empty", "header line"}},
