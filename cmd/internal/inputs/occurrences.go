@@ -591,6 +591,11 @@ func parseNumber(s string, decimalComma bool) (float64, error) {
 		return 0, errors.New("the cell is empty")
 	}
 	t := s
+	// The minus sign U+2212 (typography, word processors, some locales'
+	// spreadsheets) reads as the ASCII hyphen-minus it looks like.
+	if rest, ok := strings.CutPrefix(t, "\u2212"); ok {
+		t = "-" + rest
+	}
 	if decimalComma && strings.Count(t, ",") == 1 && !strings.Contains(t, ".") {
 		t = strings.Replace(t, ",", ".", 1)
 	}

@@ -68,6 +68,7 @@ func okCases() []okCase {
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "multi-line quoted cell", in: "lon,lat,role,note\n1.5,2.5,train,\"two\nlines\"\n-3,4,test,x\n", geographic: true,
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
+		{name: "minus sign U+2212", in: "lon;lat;role\n1,5;2,5;train\n\u22123;4;test\n", geographic: true, want: twoRecs},
 		{name: "number forms", in: "lon,lat,role\n+1.5,.25e1,train\n-3.,4E0,test\n", geographic: true, want: twoRecs},
 		{name: "longitude 0..360 and range edges", in: "lon,lat,role\n360,90,train\n-180,-90,test\n", geographic: true,
 			want: []Record{{2, 360, 90, vocab.RoleTrain}, {3, -180, -90, vocab.RoleTest}}},
