@@ -600,6 +600,10 @@ func parseNumber(s string, decimalComma bool) (float64, error) {
 		t = strings.Replace(t, ",", ".", 1)
 	}
 	if !isDecimal(t) {
+		if strings.ContainsAny(s, "°º'′\"″") || strings.ContainsAny(strings.ToUpper(strings.TrimRight(s, " ")), "NSEW") && strings.ContainsAny(s, "0123456789") {
+			return 0, fmt.Errorf("found %s, which looks like degrees, minutes and seconds or a hemisphere letter; "+
+				"convert it to signed decimal degrees (12°30'S is -12.5, 8°15'W is -8.25)", shown(s))
+		}
 		return 0, fmt.Errorf("found %s", shown(s))
 	}
 	v, err := strconv.ParseFloat(t, 64)

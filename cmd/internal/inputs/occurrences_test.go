@@ -131,6 +131,8 @@ func errCases() []errCase {
 		{name: "NaN", in: "Longitude,Latitude,role\nNaN,2,train\n", is: ErrBadNumber, line: 2, field: "Longitude", contains: []string{`"NaN"`}},
 		{name: "Inf", in: "lon,lat,role\n1,-Inf,train\n", is: ErrBadNumber, line: 2, field: "lat", contains: []string{`"-Inf"`}},
 		{name: "overflow", in: "lon,lat,role\n1e999,1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{"out of range"}},
+		{name: "degrees minutes seconds", in: "lon,lat,role\n1,12°30'S,train\n", is: ErrBadNumber, line: 2, field: "lat", contains: []string{"degrees, minutes and seconds", "-12.5"}},
+		{name: "hemisphere letter", in: "lon;lat;role\n8.25 W;1;train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{"hemisphere letter"}},
 		{name: "hex", in: "lon,lat,role\n0x10,1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{`"0x10"`}},
 		{name: "two dots", in: "lon,lat,role\n12.5.3,1,train\n", is: ErrBadNumber, line: 2, field: "lon"},
 		{name: "decimal comma with comma delimiter", in: "lon,lat,role\n\"1,5\",1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{`"1,5"`, "dot as decimal separator"}},
