@@ -155,6 +155,9 @@ func LoadBatch(path string) (*Batch, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
+	if line, msg := notUTF8(data); line > 0 {
+		return nil, BatchErrors{{File: path, Line: line, Err: fmt.Errorf("%w: %s", ErrBatchSyntax, msg)}}
+	}
 	ext := strings.ToLower(filepath.Ext(path))
 	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
 }

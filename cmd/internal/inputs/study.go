@@ -90,6 +90,9 @@ func LoadStudy(path string) (*Study, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
 	}
+	if line, msg := notUTF8(data); line > 0 {
+		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: %s", ErrStudySyntax, msg)}
+	}
 	if line := tableHeader(data); line > 0 {
 		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: this is a study table (a header id,... and one row per study), not a study file; "+
 			"run it with areasweep batch %s --out DIR", ErrStudySyntax, path)}

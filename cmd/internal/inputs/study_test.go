@@ -301,6 +301,21 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 			t.Errorf("a study file with the key id: %v, want an unknown key", err)
 		}
 	})
+	t.Run("not UTF-8", func(t *testing.T) {
+		latin1 := filepath.Join(sub, "latin1.yaml")
+		os.WriteFile(latin1, []byte("iterations: 10\n# \xe9tude\n"), 0o644)
+		_, err := LoadStudy(latin1)
+		checkStudyError(t, err, ErrStudySyntax, latin1, 2, "", []string{"0xE9 is not UTF-8", "save the file as UTF-8"})
+		utf16 := filepath.Join(sub, "utf16.yaml")
+		os.WriteFile(utf16, []byte("\xff\xfei\x00t\x00"), 0o644)
+		_, err = LoadStudy(utf16)
+		checkStudyError(t, err, ErrStudySyntax, utf16, 1, "", []string{"UTF-16", "save it as UTF-8"})
+		table := filepath.Join(sub, "latin1.csv")
+		os.WriteFile(table, []byte("id,model,occurrences,region\n\xe9,m=x.tif,o.csv,r.gpkg\n"), 0o644)
+		if _, err := LoadBatch(table); !errors.Is(err, ErrBatchSyntax) || !strings.Contains(err.Error(), "line 2") || !strings.Contains(err.Error(), "0xE9") {
+			t.Errorf("LoadBatch of a Latin-1 table: %v", err)
+		}
+	})
 	t.Run("error names path", func(t *testing.T) {
 		bad := filepath.Join(sub, "bad.yaml")
 		if err := os.WriteFile(bad, []byte("iterations: 10\nbogus: 1\n"), 0o644); err != nil {
