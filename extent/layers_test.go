@@ -157,3 +157,39 @@ func TestUnitFieldIgnoresCase(t *testing.T) {
 		t.Errorf("a field no name matches: %v", err)
 	}
 }
+
+// TestLatin1UnitIDs: a shapefile whose DBF text is Latin-1 and which has
+// no .cpg (older shapefiles) gives its unit ids as the Latin-1 letters,
+// so that Zoë and Zoé are two readable ids in every output.
+func TestLatin1UnitIDs(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	src := writeGeoJSON(t, dir, "units.geojson", []string{"Zoë", "Zoé"}, [][][2]float64{
+		{{0.5, 0.5}, {1.5, 0.5}, {1.5, 1.5}, {0.5, 1.5}, {0.5, 0.5}},
+		{{2.5, 2.5}, {3.5, 2.5}, {3.5, 3.5}, {2.5, 3.5}, {2.5, 2.5}},
+	})
+	ds, err := godal.Open(src, godal.VectorOnly())
+	if err != nil {
+		t.Fatal(err)
+	}
+	shp := filepath.Join(dir, "units.shp")
+	out, err := ds.VectorTranslate(shp, []string{"-f", "ESRI Shapefile", "-lco", "ENCODING=ISO-8859-1"})
+	ds.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	out.Close()
+	os.Remove(filepath.Join(dir, "units.cpg"))
+	units, _, err := ReadUnits(shp, "id", g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(units) != 2 || units[0].ID != "Zoë" || units[1].ID != "Zoé" {
+		var ids []string
+		for _, u := range units {
+			ids = append(ids, u.ID)
+		}
+		t.Errorf("ids %q, want Zoë and Zoé", ids)
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"reflect"
 	"sort"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
@@ -178,6 +179,16 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 			}
 			id = v.String()
+			if !utf8.ValidString(id) {
+				// A DBF without .cpg whose text is Latin-1 (older
+				// shapefiles): its bytes are read as Latin-1 letters, so
+				// that "Zoë" and "Zoé" stay two ids in every output.
+				r := make([]rune, len(id))
+				for i := 0; i < len(id); i++ {
+					r[i] = rune(id[i])
+				}
+				id = string(r)
+			}
 			if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
 				f.Close()
 				return nil, warns, fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
