@@ -431,7 +431,7 @@ func (p *batchParser) parseCSV(data []byte) {
 		}
 		if len(rec) != len(cols) {
 			p.add(line, "", strings.TrimSpace(rec[0]), fmt.Errorf("%w: %d cells, the header has %d columns; every row needs one cell per column (empty cells are allowed)%s",
-				ErrBatchSyntax, len(rec), len(cols), commaHint(delim, len(rec), len(cols))))
+				ErrBatchSyntax, len(rec), len(cols), rowHint(delim, rec, len(cols))))
 			continue
 		}
 		if len(p.b.Studies) == MaxBatchStudies {
@@ -589,4 +589,23 @@ oak,gbm=oak/gbm.tif;glm=oak/glm.tif,oak/points.csv,oak/region.gpkg,,
 lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 `)
 	return bw.Flush()
+}
+
+// rowHint explains a row with more cells than the header in a
+// comma-separated table by its likely cause: NAME=PATH items of one cell
+// separated by commas instead of ';', or a decimal comma (commaHint).
+func rowHint(delim rune, rec []string, header int) string {
+	if delim != ',' || len(rec) <= header {
+		return ""
+	}
+	named := 0
+	for _, c := range rec[1:] {
+		if strings.Contains(c, "=") {
+			named++
+		}
+	}
+	if named >= 2 {
+		return ". Several NAME=PATH items in one cell are separated by ';' (gbm=a.tif;glm=b.tif): with ',' they fall into the next columns"
+	}
+	return commaHint(delim, len(rec), header)
 }
