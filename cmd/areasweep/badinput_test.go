@@ -546,6 +546,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 
 		// Model rasters.
 		{"model missing", f.withModel(filepath.Join(f.dir, "nope.tif")), 2, []string{"model m", "nope.tif", "does not exist"}, "", ""},
+		{"two models in one flag", f.withModel(f.model + ",m2=" + f.model2), 2, []string{"model m", "several NAME=PATH items", "--model a=x.tif --model b=y.tif"}, "", ""},
 		{"model is a folder", f.withModel(studyDir), 2, []string{"study.d", "directory"}, "", ""},
 		{"model not a raster", f.withModel(notRaster), 2, []string{"notraster.tif", "not a raster GDAL can read"}, "", ""},
 		{"model of 0 bytes", f.withModel(f.file("zero.tif", "")), 2, []string{"model m", "zero.tif", "empty (0 bytes)"}, "", ""},

@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"runtime"
 	"strconv"
 	"strings"
@@ -146,6 +147,10 @@ func crsAdvice(crs string) string {
 	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
 }
 
+// namedItem finds a second NAME=PATH item inside a path: a list written
+// with commas in one --model, --null or --extra flag.
+var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -153,6 +158,10 @@ func mustExist(what, path string) error {
 	}
 	st, err := os.Stat(path)
 	if err != nil {
+		if strings.Contains(what, " ") && namedItem.MatchString(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: several NAME=PATH items were given in one flag; "+
+				"give each its own flag (--model a=x.tif --model b=y.tif) or, in a study file, a list", what, path))
+		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
