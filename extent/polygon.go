@@ -74,6 +74,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		hint := ""
 		if strings.HasSuffix(strings.ToLower(path), ".zip") {
 			hint = "; a zipped shapefile must be unzipped first: give the path of its .shp"
+		} else if r, rerr := OpenRaster(path); rerr == nil {
+			r.Close()
+			return nil, nil, fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
 		}
 		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, gdalmsg.Cause(err.Error()), hint)
 	}

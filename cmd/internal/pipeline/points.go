@@ -79,6 +79,10 @@ func (s *Study) openGrid() error {
 				}
 				return fault.BadInput(fmt.Errorf("model %s: %s has no coordinate reference system; %s", m.Name, m.Path, hint))
 			}
+			if v, verr := godal.Open(m.Path, godal.VectorOnly()); verr == nil {
+				v.Close()
+				return fault.BadInput(fmt.Errorf("model %s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the model's raster (GeoTIFF or any raster GDAL reads)", m.Name, m.Path))
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 		}
 		if msg := maskProblem(m.Path); msg != "" {
