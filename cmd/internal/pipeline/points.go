@@ -19,6 +19,7 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
@@ -170,6 +171,13 @@ func mustExist(what, path string) error {
 	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+	}
+	if st.Mode().IsRegular() {
+		f, err := os.Open(path)
+		if err != nil {
+			return fault.BadInput(fmt.Errorf("%s: %s cannot be read (%w); check the file's permissions", what, path, outdir.Cause(err)))
+		}
+		f.Close()
 	}
 	if st.Mode().IsRegular() && st.Size() == 0 && what != "occurrences" { // the table reader says what an empty table needs
 		return fault.BadInput(fmt.Errorf("%s: %s is empty (0 bytes); it was probably cut off while being written, copied or downloaded: give the complete file", what, path))
