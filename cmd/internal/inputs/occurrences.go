@@ -201,8 +201,12 @@ func (e *tabQuoteError) Unwrap() error { return e.err }
 // them (with "" inside read as "), so that a header or role written
 // "role" still reads. It returns the cells and the line number, skipping
 // lines whose cells are all blank; io.EOF at the end.
+//
+// A row with more cells than the header is refused: a tab inside a quoted
+// cell would shift every later cell, and the coordinates would be read
+// from the wrong columns.
 func plainRows(br *bufio.Reader, name string, perr func(int, string, error) error) func() ([]string, int, error) {
-	line := 0
+	line, width := 0, -1
 	return func() ([]string, int, error) {
 		for {
 			s, err := br.ReadString('\n')
@@ -220,9 +224,16 @@ func plainRows(br *bufio.Reader, name string, perr func(int, string, error) erro
 					rec[i] = strings.ReplaceAll(t[1:len(t)-1], `""`, `"`)
 				}
 			}
-			if !allBlank(rec) {
-				return rec, line, nil
+			if allBlank(rec) {
+				continue
 			}
+			if width < 0 {
+				width = len(rec)
+			} else if len(rec) > width {
+				return nil, 0, perr(line, "", fmt.Errorf("%w: the line has %d tab-separated cells but the header %d; "+
+					"a cell holding a tab must be in double quotes, and then every quote inside a cell must be doubled", ErrMalformed, len(rec), width))
+			}
+			return rec, line, nil
 		}
 	}
 }

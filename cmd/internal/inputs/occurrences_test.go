@@ -142,6 +142,8 @@ func errCases() []errCase {
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
+		{name: "tab bare quote and a quoted tab", in: "note\tlon\tlat\trole\na\"b\t1\t2\ttrain\n\"x\ty\"\t3\t4\ttest\n", is: ErrMalformed, line: 3,
+			contains: []string{"5 tab-separated cells but the header 4", "line 2 is not valid CSV quoting"}},
 		{name: "tab bare quote then a bad number", in: "lon\tlat\trole\tnote\n1\t2\ttrain\ta\"b\n3\tabc\ttest\tc\n", is: ErrBadNumber, line: 3, field: "lat",
 			contains: []string{`"abc"`, "quotes as ordinary characters", "line 2 is not valid CSV quoting"}},
 		{name: "utf16 le", in: "\xFF\xFEl\x00o\x00n\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-16", "CSV UTF-8"}},
