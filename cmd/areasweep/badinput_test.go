@@ -432,6 +432,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	os.WriteFile(rdFile, []byte("mine"), 0o644)
 	rdEmptyObject := reportDir("report-empty-object", `{}`)
 	rdArray := reportDir("report-array", `[1, 2]`)
+	rdFigFile := reportDir("report-figures-file", "{}")
+	os.WriteFile(filepath.Join(rdFigFile, "figures"), []byte("mine"), 0o644)
 	rdNone := reportDir("report-none", "")
 	rdAUC := reportDir("report-auc", badAUC)
 	rdBroken := reportDir("report-broken", `{"schema_version": 1, "scores": [`)
@@ -598,6 +600,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"report AUC -5", []string{"report", rdAUC}, 2, []string{"results.json", ".auc: -5 is outside [0, 1]"}, "", rdAUC},
 		{"report broken JSON", []string{"report", rdBroken}, 2, []string{"results.json", "not a results file"}, "", rdBroken},
 		{"report other schema", []string{"report", rdSchema}, 2, []string{"schema_version 99"}, "", rdSchema},
+		{"report where figures is a file", []string{"report", rdFigFile, "--force"}, 2, []string{"figures is a file", "move the file"}, "", rdFigFile},
 		{"report on a shard's folder", []string{"report", rdShard}, 2, []string{"shard-1-of-2.aspf", "merge the shards first"}, "", rdShard},
 		{"report on a file", []string{"report", rdFile}, 2, []string{"notes.txt is a file", "folder holding results.json"}, "", filepath.Dir(rdFile)},
 		{"report on an empty object", []string{"report", rdEmptyObject}, 2, []string{"results.json", "not a results file written by areasweep", "no schema_version"}, "", rdEmptyObject},

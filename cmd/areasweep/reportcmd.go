@@ -76,6 +76,9 @@ func reportRun(o *ReportOptions) error {
 			}
 		}
 	}
+	if st, err := os.Lstat(filepath.Join(o.Dir, "figures")); err == nil && !st.IsDir() {
+		return fault.BadInput(fmt.Errorf("%s is a file; the report writes its figures into a folder of that name: move the file, then run again", filepath.Join(o.Dir, "figures")))
+	}
 	r, err := report.Load(path)
 	if err != nil {
 		return fault.BadInput(err)

@@ -120,8 +120,8 @@ var figureName = regexp.MustCompile(`^((metrics_vs_area|roc_curves|extent_maps|m
 // foreign lists, as paths under --out, what the folders among names hold
 // that areasweep does not write there: in figures/ a name figureName does
 // not match, in the demo's inputs/ a name not among its files, and any
-// sub-folder. --force replaces such a folder as a whole, so these would
-// be deleted with it. staged, when not "", is the staging folder: an entry
+// sub-folder, and a file where areasweep writes that folder. --force
+// replaces such a folder as a whole, so these would be deleted with it. staged, when not "", is the staging folder: an entry
 // the staged folder of the same name holds is areasweep's too.
 func (d *Dir) foreign(names []string, staged string) []string {
 	var found []string
@@ -129,9 +129,13 @@ func (d *Dir) foreign(names []string, staged string) []string {
 		if n != "figures" && !(n == "inputs" && d.Demo) {
 			continue
 		}
+		if st, err := os.Lstat(filepath.Join(d.abs, n)); err == nil && !st.IsDir() {
+			found = append(found, filepath.Join(d.Out, n)) // areasweep writes a folder there
+			continue
+		}
 		entries, err := os.ReadDir(filepath.Join(d.abs, n))
 		if err != nil {
-			continue // not a folder, or absent: replaced as a whole entry
+			continue // absent
 		}
 		for _, e := range entries {
 			ours := !e.IsDir()

@@ -133,18 +133,21 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 		{"figure name with another extension", "figures/roc_curves.eps", false},
 		{"sub-folder of figures", "figures/drafts/a.svg", false},
 		{"notes in the demo's inputs", "inputs/notes.txt", true},
+		{"a file named figures", "figures", false},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			out := filepath.Join(t.TempDir(), "res")
 			mine(t, filepath.Join(out, c.file))
-			mine(t, filepath.Join(out, "figures", "roc_curves.svg"))
+			if c.file != "figures" {
+				mine(t, filepath.Join(out, "figures", "roc_curves.svg"))
+			}
 			open := func() (*Dir, error) { return Open(out, true, nil) }
 			if c.demo {
 				open = func() (*Dir, error) { return OpenDemo(out, true, []string{"study.yaml"}) }
 			}
 			_, err := open()
-			if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), filepath.Join(out, c.file[:strings.IndexByte(c.file, '/')])) {
+			if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), filepath.Join(out, strings.Split(c.file, "/")[0])) {
 				t.Fatalf("Open = %v, want an input error naming the file", err)
 			}
 			kept(t, filepath.Join(out, c.file))
