@@ -103,13 +103,19 @@ func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
 // Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
 func Open(out string, force bool, inputs []string) (*Dir, error) {
-	return open(out, force, inputs, false, nil)
+	return open(out, force, inputs, false, nil, false)
+}
+
+// OpenShard is Open for a shard's run, which replaces only its own
+// partial file and log (Dir.Shard), whatever else --out holds.
+func OpenShard(out string, force bool, inputs []string) (*Dir, error) {
+	return open(out, force, inputs, false, nil, true)
 }
 
 // OpenDemo is Open for the demo, whose inputs/ folder is an output entry
 // too: --force replaces it, so it may hold only the demo's own files.
 func OpenDemo(out string, force bool, inputFiles []string) (*Dir, error) {
-	return open(out, force, nil, true, inputFiles)
+	return open(out, force, nil, true, inputFiles, false)
 }
 
 // figureName matches the files the report writes into figures/, and the
@@ -170,11 +176,11 @@ func foreignError(out string, found []string) error {
 		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
 }
 
-func open(out string, force bool, inputs []string, demo bool, demoInputs []string) (*Dir, error) {
+func open(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, error) {
 	if out == "" {
 		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
-	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, demoInputs: demoInputs}
+	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
 		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
@@ -200,7 +206,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
-		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 {
+		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
 			return nil, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {

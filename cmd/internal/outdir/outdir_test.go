@@ -156,6 +156,19 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 			}
 		})
 	}
+	t.Run("a shard leaves figures/ alone", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		mine(t, filepath.Join(out, "figures", "my_figure.png"))
+		d, err := OpenShard(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(filepath.Join(d.Stage, "shard-1-of-2.aspf"), []byte("x"), 0o644)
+		if err := d.Finish(); err != nil {
+			t.Fatal(err)
+		}
+		kept(t, filepath.Join(out, "figures", "my_figure.png"))
+	})
 	t.Run("areasweep's own names pass", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
 		for _, n := range []string{"figures/ring_steps_12.pdf", "figures/model_minus_null.png", "figures/.extent_maps.svg.tmp-12345", "inputs/notes.txt"} {
