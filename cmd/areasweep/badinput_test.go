@@ -512,6 +512,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory"}, "", aFile},
 		{"out not empty without force", append(f.run("--out", nonEmpty), "--quiet"), 2, []string{"not empty", "--force"}, "", nonEmpty},
 		{"force with a file of the user's in figures/", append(f.run("--out", ownFigure, "--force"), "--quiet"), 2, []string{"my_figure.png", "not written by areasweep", "--force replaces as a whole"}, "", ownFigure},
+		{"out is an input file", append(f.run("--out", f.occ, "--force"), "--quiet"), 2, []string{"is the input file", "name a folder"}, "", f.occ},
+		{"batch out is a file", []string{"batch", f.file("table.csv", "id,model,occurrences,region\na,m="+f.model+","+f.occ+","+f.region+"\n"), "--out", aFile}, 2, []string{"afile exists and is not a directory"}, "", aFile},
 		{"out below a file", append(f.run("--out", filepath.Join(aFile, "sub")), "--quiet"), 2, []string{"afile", "cannot be used", "not a directory"}, "", filepath.Join(aFile, "sub")},
 
 		// Occurrence tables.

@@ -19,6 +19,7 @@ import (
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
@@ -435,7 +436,10 @@ func claimBatchDir(out string) error {
 			return fmt.Errorf("cannot create --out %s: %w", out, err)
 		}
 	case err != nil:
-		return fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
+		if st, serr := os.Stat(out); serr == nil && !st.IsDir() {
+			return fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the studies", out))
+		}
+		return fault.BadInput(fmt.Errorf("--out %s cannot be read (%w); choose a folder you can read and write", out, outdir.Cause(err)))
 	case len(ents) > 0:
 		if _, err := os.Stat(filepath.Join(out, batchMarker)); err != nil {
 			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, batchMarker))

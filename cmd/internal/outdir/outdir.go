@@ -311,6 +311,8 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 		case within(dir, outAbs):
 			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
 				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+		case outAbs == a:
+			return fault.BadInput(fmt.Errorf("--out %s is the input file %s; name a folder for the results", out, in))
 		case within(outAbs, a):
 			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
 		}
