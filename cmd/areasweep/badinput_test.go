@@ -492,6 +492,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model without name", []string{"run", "--model", f.model, "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no '='"}, "", ""},
 		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
 		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
+		{"unknown command", []string{"bogus"}, 2, []string{`unknown command "bogus"`, "areasweep --help"}, "", ""},
+		{"merge given nothing", []string{"merge", "--out", filepath.Join(f.outs, "merged")}, 2, []string{"no partial file given"}, "", filepath.Join(f.outs, "merged")},
 		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
 		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
 		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},

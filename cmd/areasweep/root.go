@@ -101,6 +101,10 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	if err == nil {
 		return exitOK
 	}
+	if !fault.IsBadInput(err) && !fault.IsInternal(err) && strings.HasPrefix(err.Error(), "unknown command ") {
+		// cobra's own refusal of a command it does not have.
+		err = fault.BadInput(fmt.Errorf("%w (see 'areasweep --help')", err))
+	}
 	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
 	switch {
 	case fault.IsBadInput(err):
@@ -205,9 +209,15 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 		return nil
 	}
 	return func(c *cobra.Command, args []string) error {
-		if err := a(c, args); err != nil {
-			return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
+		err := a(c, args)
+		switch {
+		case err == nil:
+			return nil
+		case strings.Contains(err.Error(), "--help"): // the command's own message
+			return fault.BadInput(err)
+		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
+			return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
 		}
-		return nil
+		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
 	}
 }
