@@ -129,7 +129,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if s.dir == nil {
 		var err error
 		open := outdir.Open
-		if o.shard {
+		if o.Shard {
 			open = outdir.OpenShard
 		}
 		if s.dir, err = open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
