@@ -23,13 +23,6 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	}
 	ds = sortedUnique(ds)
 	lats, lons := boundaryLonLat(b.g, base)
-	if len(lats) == 0 {
-		return fmt.Errorf("extent: the base region has no boundary off the antimeridian and poles; region buffers are not defined")
-	}
-	ix, err := geodesy.NewIndex(lats, lons)
-	if err != nil {
-		return fmt.Errorf("extent: base region boundary: %w", err)
-	}
 	type buf struct {
 		k   int
 		d   float64 // metres, signed
@@ -63,6 +56,24 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 		}
 	}
 	b.f.Chains[chainRegion] = chain
+	baseRows := b.f.cells[baseK].rows
+	if len(lats) == 0 {
+		// A region with no boundary off the antimeridian and the poles
+		// (the whole globe): nothing lies beyond it to grow into, and no
+		// cell is near a boundary to shrink from, so every buffer is the
+		// base itself (and is marked its duplicate).
+		for _, bf := range bufs {
+			for row, r := range baseRows {
+				b.f.cells[bf.k].rows[row] = append(rowRuns(nil), r...)
+			}
+		}
+		b.f.Warnings = append(b.f.Warnings, "the base region covers the whole globe (no boundary off the antimeridian and the poles): each region buffer equals it")
+		return nil
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		return fmt.Errorf("extent: base region boundary: %w", err)
+	}
 	reach := newReach(lats, lons, maxD)
 	var abs []float64
 	for _, bf := range bufs {
@@ -72,7 +83,6 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	for i := range bufs {
 		bufs[i].cut = sort.SearchFloat64s(cuts, math.Abs(bufs[i].d))
 	}
-	baseRows := b.f.cells[baseK].rows
 	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
 		// A grown member is the base or within d of its boundary; a shrunk
 		// one is the base minus the cells within |d|.

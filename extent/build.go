@@ -2,6 +2,7 @@ package extent
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"sort"
 	"strconv"
@@ -55,7 +56,7 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 	base, warns, err := ReadShape(spec.Region, g)
 	f.Warnings = append(f.Warnings, warns...)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("region: %w", err)
 	}
 	f.Base = base
 	baseK, err := b.add(Member{ID: vocab.BaseID, Kind: vocab.KindBase, Params: "file=" + baseName(spec.Region)})
@@ -91,7 +92,7 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		s, warns, err := ReadShape(x.Path, g)
 		f.Warnings = append(f.Warnings, warns...)
 		if err != nil {
-			return nil, err
+			return nil, fmt.Errorf("extra %s: %w", x.Name, err)
 		}
 		k, err := b.add(Member{ID: "user_" + x.Name, Kind: vocab.KindUser, Params: "file=" + baseName(x.Path)})
 		if err != nil {

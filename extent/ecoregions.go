@@ -24,7 +24,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 	units, warns, err := ReadUnits(spec.Ecoregions, spec.EcoregionField, b.g)
 	b.f.Warnings = append(b.f.Warnings, warns...)
 	if err != nil {
-		return err
+		return fmt.Errorf("ecoregions: %w", err)
 	}
 	// Training points in grid CRS.
 	lats, lons := splitLL(spec.Train)

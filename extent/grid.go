@@ -106,7 +106,7 @@ var equalAreaMethods = []string{
 // OpenGrid reads the grid of the raster at path (first band).
 func OpenGrid(path string) (*Grid, error) {
 	Register()
-	ds, err := godal.Open(path, godal.RasterOnly())
+	ds, err := OpenRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
@@ -269,6 +269,12 @@ func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 	gt := g.GeoTransform
 	fc := (x - gt[0]) / gt[1]
 	fr := (y - gt[3]) / gt[5]
+	if g.Geographic && y == -90 && fr >= float64(g.Height) && math.Abs(gt[3]+float64(g.Height)*gt[5]+90) < 1e-9 {
+		// The South Pole on a grid that reaches it: nothing lies south of
+		// the bottom edge there, so it is in the last row (as the North
+		// Pole is in the first).
+		fr = float64(g.Height) - 0.5
+	}
 	if math.IsNaN(fc) || math.IsNaN(fr) || fc < 0 || fr < 0 || fc >= float64(g.Width) || fr >= float64(g.Height) {
 		return 0, 0, false
 	}
@@ -591,7 +597,7 @@ func (g *Grid) SameAs(o *Grid) string {
 			break
 		}
 	}
-	if !g.srs.IsSame(o.srs) {
+	if !sameCRS(g, o) {
 		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))
 	}
 	return strings.Join(diffs, "; ")

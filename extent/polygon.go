@@ -7,6 +7,7 @@ import (
 	"reflect"
 	"sort"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
@@ -70,16 +71,45 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	var warns []string
 	ds, err := godal.Open(path, godal.VectorOnly())
 	if err != nil {
-		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
+		hint := ""
+		if strings.HasSuffix(strings.ToLower(path), ".zip") {
+			hint = "; a zipped shapefile must be unzipped first: give the path of its .shp"
+		} else if r, rerr := OpenRaster(path); rerr == nil {
+			r.Close()
+			return nil, nil, fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
+		}
+		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, gdalmsg.Cause(err.Error()), hint)
 	}
 	defer ds.Close()
 	layers := ds.Layers()
 	if len(layers) == 0 {
 		return nil, nil, fmt.Errorf("extent: %s has no layer", path)
 	}
+	// Of several layers, the first whose declared geometry type is an
+	// area (a GeoPackage often holds the points or lines of the same
+	// study beside its polygons), else the first.
 	layer := layers[0]
 	if len(layers) > 1 {
-		warns = append(warns, fmt.Sprintf("%s has %d layers; using the first, %q", path, len(layers), layer.Name()))
+		which := "the first"
+		for i, l := range layers {
+			if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
+				if i > 0 {
+					which = "the first of polygons"
+				}
+				layer = l
+				break
+			}
+		}
+		var names []string
+		for i, l := range layers {
+			if i == 8 {
+				names = append(names, fmt.Sprintf("and %d more", len(layers)-8))
+				break
+			}
+			names = append(names, l.Name())
+		}
+		warns = append(warns, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
+			path, len(layers), strings.Join(names, ", "), which, layer.Name(), path))
 	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
@@ -91,10 +121,23 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
 	defer lsr.Close()
+	// Z or M coordinates (a KML with altitudes, a PolygonZ shapefile) and
+	// curved geometries (an ArcGIS export's CurvePolygon or MultiSurface)
+	// are read as their plane, linear equivalent: a copy of the layer in
+	// memory, as ogr2ogr -dim XY -nlt CONVERT_TO_LINEAR makes it.
+	if needsFlattening(layer) {
+		flat, err := ds.VectorTranslate("", []string{"-dim", "XY", "-nlt", "CONVERT_TO_LINEAR", layer.Name()}, godal.Memory)
+		if err != nil {
+			return nil, warns, fmt.Errorf("extent: %s layer %q: its 3D or curved geometries could not be made plane and linear (%s); save the layer as 2D polygons in a GIS", path, layer.Name(), gdalmsg.Cause(err.Error()))
+		}
+		defer flat.Close()
+		ds, layer = flat, flat.Layers()[0]
+	}
 	if err := checkFeatureTypes(path, layer); err != nil {
 		return nil, warns, err
 	}
 	if field != "" {
+		field = fieldName(layer, field)
 		if err := checkNullIDs(ds, path, layer, field); err != nil {
 			return nil, warns, err
 		}
@@ -103,7 +146,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
 	// buffer would drop from a bow-tie, on a copy of the layer in memory.
 	if bad := invalidFeatures(layer); len(bad) > 0 {
-		fixed, err := ds.VectorTranslate("", []string{"-makevalid"}, godal.Memory)
+		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
 			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, bad, gdalmsg.Cause(err.Error()))
 		}
@@ -139,6 +182,16 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 			}
 			id = v.String()
+			if !utf8.ValidString(id) {
+				// A DBF without .cpg whose text is Latin-1 (older
+				// shapefiles): its bytes are read as Latin-1 letters, so
+				// that "Zoë" and "Zoé" stay two ids in every output.
+				r := make([]rune, len(id))
+				for i := 0; i < len(id); i++ {
+					r[i] = rune(id[i])
+				}
+				id = string(r)
+			}
 			if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
 				f.Close()
 				return nil, warns, fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
@@ -319,6 +372,32 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 	}
 }
 
+// needsFlattening reports whether a feature of the layer has Z or M
+// coordinates or a curved geometry type (OGR's geometry type codes: the
+// 2.5D flag 0x80000000, ISO codes 1000 and up for Z, M and ZM, and 8 to 12
+// for the curve types), which the plane, linear reading of shapeOf does
+// not take.
+func needsFlattening(layer godal.Layer) bool {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for {
+		f := layer.NextFeature()
+		if f == nil {
+			return false
+		}
+		flat := true
+		if g := f.Geometry(); !noGeometry(g) {
+			t := uint32(g.Type())
+			base := (t & 0x7fffffff) % 1000
+			flat = t&0x80000000 == 0 && t&0x7fffffff < 1000 && (base < 8 || base > 12)
+		}
+		f.Close()
+		if !flat {
+			return true
+		}
+	}
+}
+
 // polygonProblem says what makes g unusable as an area, or "".
 func polygonProblem(g *godal.Geometry) string {
 	switch g.Type() {
@@ -342,6 +421,37 @@ func polygonProblem(g *godal.Geometry) string {
 		return ""
 	}
 	return "is a " + strings.ToLower(g.Name()) + ", not a polygon"
+}
+
+// fieldName returns the layer's field named name, or, when it has none,
+// its one field whose name differs only in case (a shapefile's DBF holds
+// ECO_NAME, typed eco_name; OGR's own SQL ignores case too). Otherwise
+// name itself, which the reader then reports with the list of fields.
+func fieldName(layer godal.Layer, name string) string {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	f := layer.NextFeature()
+	if f == nil {
+		return name
+	}
+	defer f.Close()
+	fields := f.Fields()
+	if _, ok := fields[name]; ok {
+		return name
+	}
+	found := ""
+	for k := range fields {
+		if strings.EqualFold(k, name) {
+			if found != "" {
+				return name // two spellings: say which fields there are
+			}
+			found = k
+		}
+	}
+	if found == "" {
+		return name
+	}
+	return found
 }
 
 // checkNullIDs refuses a unit layer with features whose id field is NULL:

@@ -3,7 +3,9 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io"
 	"os"
 
 	"areasweep/extent/vocab"
@@ -466,12 +468,38 @@ func Load(path string) (*Results, error) {
 	}
 	var r Results
 	if err := json.Unmarshal(data, &r); err != nil {
-		return nil, fmt.Errorf("report: %s is not a results file: %w", path, err)
+		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(err))
+	}
+	if r.SchemaVersion == 0 {
+		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (it has no schema_version); give the --out folder of a finished run", path)
 	}
 	if r.SchemaVersion != SchemaVersion {
-		return nil, fmt.Errorf("report: %s has schema_version %d, this build reads %d", path, r.SchemaVersion, SchemaVersion)
+		by := ""
+		if r.Software.Version != "" {
+			by = " (" + r.Software.Version + ")"
+		}
+		return nil, fmt.Errorf("report: %s has schema_version %d, this build reads %d: re-render it with the areasweep version that wrote it%s, or run the study again with this one",
+			path, r.SchemaVersion, SchemaVersion, by)
 	}
 	return &r, nil
+}
+
+// jsonCause says in plain words why a file is not the JSON of a results
+// file: cut short, not JSON (where), or JSON of another shape.
+func jsonCause(err error) string {
+	var syn *json.SyntaxError
+	var typ *json.UnmarshalTypeError
+	switch {
+	case errors.Is(err, io.ErrUnexpectedEOF) || err.Error() == "unexpected end of JSON input":
+		return "it is cut short"
+	case errors.As(err, &syn):
+		return fmt.Sprintf("it is not valid JSON at byte %d: %s", syn.Offset, syn.Error())
+	case errors.As(err, &typ) && typ.Field == "":
+		return fmt.Sprintf("it holds a JSON %s, not an object", typ.Value)
+	case errors.As(err, &typ):
+		return fmt.Sprintf("its field %s holds a JSON %s of the wrong kind", typ.Field, typ.Value)
+	}
+	return err.Error()
 }
 
 // Encode returns the canonical JSON encoding of r: two-space indent, a final

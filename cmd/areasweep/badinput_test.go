@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer`)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: `)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -296,6 +296,47 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		}
 	}
 
+	// A model whose cells without data are marked by an alpha band (as
+	// gdalwarp -dstalpha writes a Float32 raster) or by an internal mask,
+	// with no nodata value: those cells hold 0, which would be scored.
+	masked := func(name string, alpha bool) string {
+		p := filepath.Join(f.dir, name)
+		bands := 1
+		if alpha {
+			bands = 2
+		}
+		ds, err := godal.Create(godal.GTiff, p, bands, godal.Float32, f.w, f.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(gt)
+		ds.SetProjection(wgs)
+		vals, valid := make([]float32, f.w*f.h), make([]float32, f.w*f.h)
+		mask := make([]byte, f.w*f.h)
+		for i, v := range f.vals {
+			if !math.IsNaN(v) {
+				vals[i], valid[i], mask[i] = float32(v), 255, 255
+			}
+		}
+		ds.Bands()[0].Write(0, 0, vals, f.w, f.h)
+		if alpha {
+			ds.Bands()[1].SetColorInterp(godal.CIAlpha)
+			ds.Bands()[1].Write(0, 0, valid, f.w, f.h)
+		} else {
+			m, err := ds.CreateMaskBand(0x02) // GMF_PER_DATASET
+			if err != nil {
+				t.Fatal(err)
+			}
+			m.Write(0, 0, mask, f.w, f.h)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	alphaModel := masked("alpha.tif", true)
+	maskModel := masked("masked.tif", false)
+
 	// Vector layers.
 	pointLayer := f.file("point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, ``))
 	lineLayer := f.file("line.geojson", polygonJSON(`{"type":"LineString","coordinates":[[14,43],[15,44]]}`, ``))
@@ -385,6 +426,14 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		out, _ := json.Marshal(m)
 		return string(out)
 	}()
+	rdShard := reportDir("report-shard", "")
+	os.WriteFile(filepath.Join(rdShard, "shard-1-of-2.aspf"), []byte("ASPF"), 0o644)
+	rdFile := filepath.Join(reportDir("report-file", ""), "notes.txt")
+	os.WriteFile(rdFile, []byte("mine"), 0o644)
+	rdEmptyObject := reportDir("report-empty-object", `{}`)
+	rdArray := reportDir("report-array", `[1, 2]`)
+	rdFigFile := reportDir("report-figures-file", "{}")
+	os.WriteFile(filepath.Join(rdFigFile, "figures"), []byte("mine"), 0o644)
 	rdNone := reportDir("report-none", "")
 	rdAUC := reportDir("report-auc", badAUC)
 	rdBroken := reportDir("report-broken", `{"schema_version": 1, "scores": [`)
@@ -394,6 +443,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	nonEmpty := filepath.Join(f.outs, "nonempty")
 	os.MkdirAll(nonEmpty, 0o755)
 	os.WriteFile(filepath.Join(nonEmpty, "notes.txt"), []byte("mine"), 0o644)
+	ownFigure := filepath.Join(f.outs, "ownfigure")
+	os.MkdirAll(filepath.Join(ownFigure, "figures"), 0o755)
+	os.WriteFile(filepath.Join(ownFigure, "figures", "my_figure.png"), []byte("mine"), 0o644)
+	os.WriteFile(filepath.Join(ownFigure, "results.json"), []byte("{}"), 0o644)
 	aFile := filepath.Join(f.outs, "afile")
 	os.WriteFile(aFile, []byte("x"), 0o644)
 
@@ -439,9 +492,16 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model without name", []string{"run", "--model", f.model, "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no '='"}, "", ""},
 		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
 		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
+		{"unknown command", []string{"bogus"}, 2, []string{`unknown command "bogus"`, "areasweep --help"}, "", ""},
+		{"merge given nothing", []string{"merge", "--out", filepath.Join(f.outs, "merged")}, 2, []string{"no partial file given"}, "", filepath.Join(f.outs, "merged")},
 		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
-		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed"}, "", ""},
+		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
+		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},
+		{"demo seed out of range", []string{"demo", "--scenario-seed", "99999999999999999999"}, 2, []string{"--scenario-seed", "is out of range", "demo --help"}, "", ""},
+		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"report accepts 1 arg(s), received 2", "report --help"}, "", ""},
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
+		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
+		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},
 		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},
 		{"no occurrences", []string{"run", "--model", "m=" + f.model, "--region", f.region}, 2, []string{"--occurrences"}, "", ""},
 		{"out empty", append(f.run("--out", ""), "--quiet"), 2, []string{"--out is empty"}, "", filepath.Join(f.outs, "never")},
@@ -453,12 +513,16 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"study file out: ..", []string{"run", "--study", studyOutUp, "--force", "--quiet"}, 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
 		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory"}, "", aFile},
 		{"out not empty without force", append(f.run("--out", nonEmpty), "--quiet"), 2, []string{"not empty", "--force"}, "", nonEmpty},
+		{"force with a file of the user's in figures/", append(f.run("--out", ownFigure, "--force"), "--quiet"), 2, []string{"my_figure.png", "not written by areasweep", "--force replaces as a whole"}, "", ownFigure},
+		{"out is an input file", append(f.run("--out", f.occ, "--force"), "--quiet"), 2, []string{"is the input file", "name a folder"}, "", f.occ},
+		{"batch out is a file", []string{"batch", f.file("table.csv", "id,model,occurrences,region\na,m="+f.model+","+f.occ+","+f.region+"\n"), "--out", aFile}, 2, []string{"afile exists and is not a directory"}, "", aFile},
 		{"out below a file", append(f.run("--out", filepath.Join(aFile, "sub")), "--quiet"), 2, []string{"afile", "cannot be used", "not a directory"}, "", filepath.Join(aFile, "sub")},
 
 		// Occurrence tables.
 		{"occurrences missing", f.withOcc(filepath.Join(f.dir, "nope.csv")), 2, []string{"nope.csv", "does not exist"}, "", ""},
 		{"occurrences is a folder", f.withOcc(occDir), 2, []string{"occdir.csv", "directory"}, "", ""},
 		{"occurrences is a device", f.withOcc("/dev/zero"), 2, []string{"/dev/zero", "not a regular file"}, "", ""},
+		{"occurrences is a GeoTIFF", f.withOcc(f.file("occ_tif.csv", string(good))), 2, []string{"occ_tif.csv", "binary file", "GeoTIFF", "CSV"}, "", ""},
 		{"occurrences empty", f.withOcc(f.file("empty.csv", "")), 2, []string{"empty.csv", "empty"}, "", ""},
 		{"occurrences header only", f.withOcc(f.file("header.csv", "lon,lat,role\n")), 2, []string{"header.csv", "only a header"}, "", ""},
 		{"occurrences no role column", f.withOcc(f.file("norole.csv", "lon,lat\n13,43\n")), 2, []string{"norole.csv", "role"}, "", ""},
@@ -488,14 +552,20 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 
 		// Model rasters.
 		{"model missing", f.withModel(filepath.Join(f.dir, "nope.tif")), 2, []string{"model m", "nope.tif", "does not exist"}, "", ""},
+		{"two models in one flag", f.withModel(f.model + ",m2=" + f.model2), 2, []string{"model m", "several NAME=PATH items", "--model a=x.tif --model b=y.tif"}, "", ""},
 		{"model is a folder", f.withModel(studyDir), 2, []string{"study.d", "directory"}, "", ""},
 		{"model not a raster", f.withModel(notRaster), 2, []string{"notraster.tif", "not a raster GDAL can read"}, "", ""},
+		{"model of 0 bytes", f.withModel(f.file("zero.tif", "")), 2, []string{"model m", "zero.tif", "empty (0 bytes)"}, "", ""},
+		{"region of 0 bytes", f.withRegion(f.file("zero.gpkg", "")), 2, []string{"region", "zero.gpkg", "empty (0 bytes)"}, "", ""},
 		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
+		{"model: an ASCII grid without .prj", f.withModel(f.file("noprj.asc", "ncols 2\nnrows 2\nxllcorner 10\nyllcorner 40\ncellsize 0.25\n1 2\n3 4\n")), 2, []string{"noprj.asc", "no coordinate reference system", "noprj.prj", "gdal_translate -a_srs"}, "", ""},
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
 		// A later pass finds it itself (no range read before the pass).
 		{"null all no data", f.run("--null", "n="+allNoData), 2, []string{"model n", "allnodata.tif", "every cell", "no data"}, "", ""},
+		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
+		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"model n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
 		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 
@@ -503,6 +573,12 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
 		{"region checksum fails", f.withRegion(fakeGDB), 2, []string{"region", "fake.gdb", "is a directory"}, "", ""},
 		{"occurrences bad and region checksum fails", f.withRegion(fakeGDB, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n")), 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
+		{"region a zipped shapefile", f.withRegion(f.file("region.zip", "PK\x03\x04 not really")), 2, []string{"region.zip", "unzipped first"}, "", ""},
+		{"region a GDAL virtual path", f.withRegion("/vsizip/" + filepath.Join(f.dir, "region.zip") + "/region.shp"), 2, []string{"region", "/vsizip/", "local files only", "unzip"}, "", ""},
+		{"model a URL", f.withModel("https://example.invalid/model.tif"), 2, []string{"model m", "https://example.invalid/model.tif", "URL", "download"}, "", ""},
+		{"region is a raster", f.withRegion(f.model), 2, []string{"region: ", "model.tif is a raster, not a vector file"}, "", ""},
+		{"model is a vector file", f.withModel(f.region), 2, []string{"model m", "region.geojson is a vector file or a table", "not a raster"}, "", ""},
+		{"ecoregions error names the input", f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone"), 2, []string{"ecoregions: ", `no field "zone"`}, "", ""},
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
 		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
 		{"region point", f.withRegion(pointLayer), 2, []string{"point.geojson feature 1", "point"}, "", ""},
@@ -528,6 +604,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"report AUC -5", []string{"report", rdAUC}, 2, []string{"results.json", ".auc: -5 is outside [0, 1]"}, "", rdAUC},
 		{"report broken JSON", []string{"report", rdBroken}, 2, []string{"results.json", "not a results file"}, "", rdBroken},
 		{"report other schema", []string{"report", rdSchema}, 2, []string{"schema_version 99"}, "", rdSchema},
+		{"report where figures is a file", []string{"report", rdFigFile, "--force"}, 2, []string{"figures is a file", "move the file"}, "", rdFigFile},
+		{"report on a shard's folder", []string{"report", rdShard}, 2, []string{"shard-1-of-2.aspf", "merge the shards first"}, "", rdShard},
+		{"report on a file", []string{"report", rdFile}, 2, []string{"notes.txt is a file", "folder holding results.json"}, "", filepath.Dir(rdFile)},
+		{"report on an empty object", []string{"report", rdEmptyObject}, 2, []string{"results.json", "not a results file written by areasweep", "no schema_version"}, "", rdEmptyObject},
+		{"report on a JSON array", []string{"report", rdArray}, 2, []string{"results.json", "holds a JSON array, not an object"}, "", rdArray},
 		{"demo workers huge", []string{"demo", "--workers", "100000"}, 2, []string{"--workers is 100000"}, "", ""},
 	}
 }

@@ -19,6 +19,7 @@ import (
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
@@ -274,6 +275,9 @@ func flagColumn(msg string) string {
 // its column.
 func missingInput(o *pipeline.Options) (string, error) {
 	check := func(col, path string) error {
+		if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+			return fmt.Errorf("%s is a GDAL virtual path or a URL; areasweep reads local files only: download or unzip the file and give its path", path)
+		}
 		st, err := os.Stat(path)
 		if err != nil {
 			return fmt.Errorf("%s does not exist or cannot be read; check the path", path)
@@ -432,7 +436,10 @@ func claimBatchDir(out string) error {
 			return fmt.Errorf("cannot create --out %s: %w", out, err)
 		}
 	case err != nil:
-		return fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
+		if st, serr := os.Stat(out); serr == nil && !st.IsDir() {
+			return fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the studies", out))
+		}
+		return fault.BadInput(fmt.Errorf("--out %s cannot be read (%w); choose a folder you can read and write", out, outdir.Cause(err)))
 	case len(ents) > 0:
 		if _, err := os.Stat(filepath.Join(out, batchMarker)); err != nil {
 			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, batchMarker))

@@ -57,7 +57,7 @@ func demoRun(o *DemoOptions) error {
 	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
 		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers))
 	}
-	d, err := outdir.Open(o.Out, o.Force, nil)
+	d, err := outdir.OpenDemo(o.Out, o.Force, scenario.FileNames())
 	if err != nil {
 		return err
 	}

@@ -49,9 +49,18 @@ with --force.`,
 }
 
 func reportRun(o *ReportOptions) error {
+	if st, err := os.Stat(o.Dir); err == nil && st.Mode().IsRegular() {
+		if filepath.Base(o.Dir) != "results.json" {
+			return fault.BadInput(fmt.Errorf("%s is a file; give the --out directory of a finished run (the folder holding results.json)", o.Dir))
+		}
+		o.Dir = filepath.Dir(o.Dir) // the results file itself: its folder is the run's
+	}
 	path := filepath.Join(o.Dir, "results.json")
 	st, err := os.Stat(path)
 	if err != nil {
+		if shards, _ := filepath.Glob(filepath.Join(o.Dir, "shard-*-of-*.aspf")); len(shards) > 0 {
+			return fault.BadInput(fmt.Errorf("%s holds the partial file(s) of a sharded run (%s), not its results: merge the shards first (areasweep merge --out DIR SHARD...), then the report is in DIR", o.Dir, filepath.Base(shards[0])))
+		}
 		return fault.BadInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
 	}
 	if !st.Mode().IsRegular() {
@@ -66,6 +75,9 @@ func reportRun(o *ReportOptions) error {
 				return fault.BadInput(fmt.Errorf("%s already holds %s; add --force to re-render the report in place", o.Dir, f))
 			}
 		}
+	}
+	if st, err := os.Lstat(filepath.Join(o.Dir, "figures")); err == nil && !st.IsDir() {
+		return fault.BadInput(fmt.Errorf("%s is a file; the report writes its figures into a folder of that name: move the file, then run again", filepath.Join(o.Dir, "figures")))
 	}
 	r, err := report.Load(path)
 	if err != nil {

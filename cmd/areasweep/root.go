@@ -6,6 +6,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"regexp"
 	"runtime/debug"
 	"strings"
 	"sync"
@@ -100,6 +101,10 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	if err == nil {
 		return exitOK
 	}
+	if !fault.IsBadInput(err) && !fault.IsInternal(err) && strings.HasPrefix(err.Error(), "unknown command ") {
+		// cobra's own refusal of a command it does not have.
+		err = fault.BadInput(fmt.Errorf("%w (see 'areasweep --help')", err))
+	}
 	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
 	switch {
 	case fault.IsBadInput(err):
@@ -167,6 +172,14 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		if m := numberError.FindStringSubmatch(err.Error()); m != nil {
+			what := map[string]string{"Uint": "a whole number of 0 or more", "Int": "a whole number", "Float": "a number", "Bool": "true or false"}[m[2]]
+			why := "is not " + what
+			if m[4] == "value out of range" {
+				why = "is out of range"
+			}
+			return fault.BadInput(fmt.Errorf("%s: %q %s (see 'areasweep %s --help')", m[1], m[3], why, c.Name()))
+		}
 		return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
 	})
 	root.AddCommand(
@@ -184,10 +197,27 @@ reports how much of each score comes from the extent rather than from the model.
 	return root
 }
 
-// wrapArgs marks argument-count errors as bad input.
+// numberError matches pflag's message for a flag value Go cannot parse,
+// which quotes Go's own parser ("strconv.ParseUint: parsing ..."): the
+// flag part, the parser's type, the value and the reason.
+var numberError = regexp.MustCompile(`^(invalid argument ".*" for ".*" flag): strconv\.Parse(Uint|Int|Float|Bool): parsing "(.*)": (invalid syntax|value out of range)$`)
+
+// wrapArgs marks argument-count errors as bad input, with the pointer to
+// the command's help that flag errors carry.
 func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 	if a == nil {
 		return nil
 	}
-	return func(c *cobra.Command, args []string) error { return fault.BadInput(a(c, args)) }
+	return func(c *cobra.Command, args []string) error {
+		err := a(c, args)
+		switch {
+		case err == nil:
+			return nil
+		case strings.Contains(err.Error(), "--help"): // the command's own message
+			return fault.BadInput(err)
+		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
+			return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
+		}
+		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
+	}
 }

@@ -297,3 +297,42 @@ func TestShardsShareAFolder(t *testing.T) {
 		t.Fatalf("merge of the folder: exit %d: %s", code, se)
 	}
 }
+
+// TestMergeRelativePaths: shards run with paths relative to their folder
+// record them so; a merge from another folder is refused naming the input
+// and what to do (exit 2, nothing written), and one from the shards'
+// folder merges.
+func TestMergeRelativePaths(t *testing.T) {
+	s := newSmallStudy(t)
+	run := func(dir string, args ...string) (string, int) {
+		cmd := exec.Command(areasweepBin, args...)
+		cmd.Dir = dir
+		var se bytes.Buffer
+		cmd.Stderr = &se
+		err := cmd.Run()
+		if ee, ok := err.(*exec.ExitError); ok {
+			return se.String(), ee.ExitCode()
+		} else if err != nil {
+			t.Fatal(err)
+		}
+		return se.String(), 0
+	}
+	for i := 1; i <= 2; i++ {
+		if se, code := run(s.dir, "run", "--model", "m=model.tif", "--occurrences", "occ.csv", "--region", "region.geojson", "--iterations", "10",
+			"--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--shard", fmt.Sprintf("%d/2", i), "--out", fmt.Sprintf("shards/%d", i)); code != 0 {
+			t.Fatalf("shard %d: exit %d: %s", i, code, se)
+		}
+	}
+	elsewhere := t.TempDir()
+	out := filepath.Join(elsewhere, "merged")
+	se, code := run(elsewhere, "merge", "--quiet", "--out", out, filepath.Join(s.dir, "shards", "1"), filepath.Join(s.dir, "shards", "2"))
+	if code != 2 || !strings.Contains(se, "occ.csv") || !strings.Contains(se, "relative to the folder the shards ran in") || !strings.Contains(se, elsewhere) {
+		t.Fatalf("merge from another folder: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the refused merge created --out")
+	}
+	if se, code := run(s.dir, "merge", "--quiet", "--out", out, "shards/1", "shards/2"); code != 0 {
+		t.Fatalf("merge from the shards' folder: exit %d: %s", code, se)
+	}
+}

@@ -155,6 +155,9 @@ func LoadBatch(path string) (*Batch, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
+	if line, msg := notUTF8(data); line > 0 {
+		return nil, BatchErrors{{File: path, Line: line, Err: fmt.Errorf("%w: %s", ErrBatchSyntax, msg)}}
+	}
 	ext := strings.ToLower(filepath.Ext(path))
 	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
 }
@@ -286,6 +289,22 @@ func (p *batchParser) parseYAML(data []byte) {
 		p.add(root.Line, "", "", fmt.Errorf("%w: %s", ErrBatchSyntax, shape))
 		return
 	}
+	// A study file given as a table: its keys are study keys, and none
+	// is settings or studies. One message says so instead of one per key.
+	isStudy, hasTableKey := false, false
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		switch k := deref(root.Content[i]).Value; {
+		case k == "settings" || k == "studies":
+			hasTableKey = true
+		case contains(studyKeys, k):
+			isStudy = true
+		}
+	}
+	if isStudy && !hasTableKey {
+		p.add(root.Line, "", "", fmt.Errorf("%w: this is a study file (one study's key: value lines), not a study table; "+
+			"run it with areasweep run --study FILE, or %s (areasweep batch --template prints an example)", ErrBatchSyntax, shape))
+		return
+	}
 	var studies *yaml.Node
 	for i := 0; i+1 < len(root.Content); i += 2 {
 		k, v := deref(root.Content[i]), deref(root.Content[i+1])
@@ -412,7 +431,7 @@ func (p *batchParser) parseCSV(data []byte) {
 		}
 		if len(rec) != len(cols) {
 			p.add(line, "", strings.TrimSpace(rec[0]), fmt.Errorf("%w: %d cells, the header has %d columns; every row needs one cell per column (empty cells are allowed)%s",
-				ErrBatchSyntax, len(rec), len(cols), commaHint(delim, len(rec), len(cols))))
+				ErrBatchSyntax, len(rec), len(cols), rowHint(delim, rec, len(cols))))
 			continue
 		}
 		if len(p.b.Studies) == MaxBatchStudies {
@@ -570,4 +589,23 @@ oak,gbm=oak/gbm.tif;glm=oak/glm.tif,oak/points.csv,oak/region.gpkg,,
 lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 `)
 	return bw.Flush()
+}
+
+// rowHint explains a row with more cells than the header in a
+// comma-separated table by its likely cause: NAME=PATH items of one cell
+// separated by commas instead of ';', or a decimal comma (commaHint).
+func rowHint(delim rune, rec []string, header int) string {
+	if delim != ',' || len(rec) <= header {
+		return ""
+	}
+	named := 0
+	for _, c := range rec[1:] {
+		if strings.Contains(c, "=") {
+			named++
+		}
+	}
+	if named >= 2 {
+		return ". Several NAME=PATH items in one cell are separated by ';' (gbm=a.tif;glm=b.tif): with ',' they fall into the next columns"
+	}
+	return commaHint(delim, len(rec), header)
 }

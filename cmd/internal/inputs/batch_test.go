@@ -201,6 +201,7 @@ func TestBatchRefuses(t *testing.T) {
 		{"duplicate column", "id,model,models\n", false, ErrBatchColumn, "columns 2 and 3"},
 		{"bad shared", "# iterations: many\nid,model,occurrences,region\na,m=x,p,r\n", false, ErrBadValue, "line 1"},
 		{"shared not yaml", "# : : [\nid,model\n", false, ErrBatchSyntax, "shared settings"},
+		{"models separated by commas", "id,model,occurrences,region\na,gbm=a.tif,glm=b.tif,p,r\n", false, ErrBatchSyntax, "separated by ';'"},
 		{"bad quote", "id,model,occurrences,region\na,\"m=x,p,r\n", false, ErrBatchSyntax, "quote"},
 		{"yaml list root", "- a\n", true, ErrBatchSyntax, "settings:"},
 		{"yaml unknown top", "studys: []\n", true, ErrBatchSyntax, `"studys"`},
@@ -211,6 +212,7 @@ func TestBatchRefuses(t *testing.T) {
 		{"yaml syntax", "studies: [\n", true, ErrBatchSyntax, "not valid YAML"},
 		{"yaml empty", "", true, ErrBatchSyntax, "settings:"},
 		{"yaml no studies", "settings: {iterations: 5}\n", true, ErrBatchEmpty, "no study"},
+		{"yaml study file", "model:\n  - good=m.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 5\n", true, ErrBatchSyntax, "this is a study file"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -16,6 +16,9 @@
 // more of). When the delimiter is a semicolon or a tab, a number written
 // with a single decimal comma and no dot (for example 12,5) is read as a
 // decimal number (12.5), as spreadsheet programs in many locales write it.
+// Cells follow CSV quoting; a tab-separated table that breaks it (a GBIF
+// download quotes nothing, so quotes in its text are bare) is read again
+// with quotes as ordinary characters, one record per physical line.
 // A UTF-8 byte-order mark is ignored; a UTF-16 file is rejected with advice
 // to save it as UTF-8. Blank lines, and lines whose cells are all empty,
 // are skipped. Every record keeps its physical line number so that later

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"unicode/utf8"
 )
 
 // Size limits of the text inputs. They are far above any real table or
@@ -83,4 +84,29 @@ func shown(s string) string {
 		return fmt.Sprintf("%q", s)
 	}
 	return fmt.Sprintf("%q... (%d characters)", string(r[:MaxShownChars]), len(r))
+}
+
+// notUTF8 returns the line of the first byte of data that is not UTF-8
+// text and what to say about it, or 0 and "" when data is UTF-8 (a UTF-8
+// byte-order mark allowed). A UTF-16 file is named as such; another byte
+// is most likely Latin-1 or Windows-1252, as older editors save.
+func notUTF8(data []byte) (int, string) {
+	if len(data) >= 2 && ((data[0] == 0xFF && data[1] == 0xFE) || (data[0] == 0xFE && data[1] == 0xFF)) {
+		return 1, "it is UTF-16 text (it starts with a UTF-16 byte-order mark); save it as UTF-8"
+	}
+	if utf8.Valid(data) {
+		return 0, ""
+	}
+	line := 1
+	for len(data) > 0 {
+		r, n := utf8.DecodeRune(data)
+		if r == utf8.RuneError && n <= 1 {
+			return line, fmt.Sprintf("the byte 0x%02X is not UTF-8 text (it is likely Latin-1 or Windows-1252, e.g. an accented letter); save the file as UTF-8", data[0])
+		}
+		if r == '\n' {
+			line++
+		}
+		data = data[n:]
+	}
+	return 0, ""
 }

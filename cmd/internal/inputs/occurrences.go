@@ -142,14 +142,118 @@ func ReadOccurrences(path string, geographic bool) ([]Record, error) {
 // read error from r. When several lines are wrong, the first problem found
 // is reported: problems of form (numbers, roles, quoting) are found in a
 // first pass, range problems after it, and missing roles last.
+//
+// A tab-separated table is first read with CSV quoting; when that fails on
+// a quote (a GBIF download quotes nothing, so a locality such as
+// 5 km N of "Big Rock" holds bare quotes) and r can seek, it is read again
+// with quotes as ordinary characters, one record per line (see plainRows).
 func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, error) {
 	if name == "" {
 		name = "input"
 	}
+	recs, err := parseOccurrences(r, name, geographic, false)
+	var qe *tabQuoteError
+	if !errors.As(err, &qe) {
+		return recs, err
+	}
+	s, ok := r.(io.Seeker)
+	if !ok {
+		return nil, qe.err
+	}
+	if _, serr := s.Seek(0, io.SeekStart); serr != nil {
+		return nil, qe.err
+	}
+	recs, err = parseOccurrences(r, name, geographic, true)
+	var pe *ParseError
+	if errors.As(err, &pe) {
+		pe.Err = fmt.Errorf("%w (the table was read with quotes as ordinary characters, as in a GBIF download, "+
+			"because line %d is not valid CSV quoting)", pe.Err, qe.line)
+	}
+	return recs, err
+}
+
+// crReader turns every carriage return into a line feed.
+type crReader struct{ r io.Reader }
+
+func (c crReader) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	for i, b := range p[:n] {
+		if b == '\r' {
+			p[i] = '\n'
+		}
+	}
+	return n, err
+}
+
+// tabQuoteError marks a quoting error in a tab-separated table, which
+// ParseOccurrences answers by reading the table again without quoting.
+type tabQuoteError struct {
+	err  error
+	line int
+}
+
+func (e *tabQuoteError) Error() string { return e.err.Error() }
+func (e *tabQuoteError) Unwrap() error { return e.err }
+
+// plainRows reads a tab-separated table with no quoting, as GBIF writes
+// its downloads: each physical line is one record, cells are split at
+// every tab, and a cell that starts and ends with a double quote loses
+// them (with "" inside read as "), so that a header or role written
+// "role" still reads. It returns the cells and the line number, skipping
+// lines whose cells are all blank; io.EOF at the end.
+//
+// A row with more cells than the header is refused: a tab inside a quoted
+// cell would shift every later cell, and the coordinates would be read
+// from the wrong columns.
+func plainRows(br *bufio.Reader, name string, perr func(int, string, error) error) func() ([]string, int, error) {
+	line, width := 0, -1
+	return func() ([]string, int, error) {
+		for {
+			s, err := br.ReadString('\n')
+			if err != nil && err != io.EOF {
+				return nil, 0, tooLarge(err, perr, name)
+			}
+			if s == "" && err == io.EOF {
+				return nil, 0, io.EOF
+			}
+			line++
+			s = strings.TrimSuffix(strings.TrimSuffix(s, "\n"), "\r")
+			rec := strings.Split(s, "\t")
+			for i, c := range rec {
+				if t := strings.TrimSpace(c); len(t) >= 2 && t[0] == '"' && t[len(t)-1] == '"' {
+					rec[i] = strings.ReplaceAll(t[1:len(t)-1], `""`, `"`)
+				}
+			}
+			if allBlank(rec) {
+				continue
+			}
+			if width < 0 {
+				width = len(rec)
+			} else if len(rec) > width {
+				return nil, 0, perr(line, "", fmt.Errorf("%w: the line has %d tab-separated cells but the header %d; "+
+					"a cell holding a tab must be in double quotes, and then every quote inside a cell must be doubled", ErrMalformed, len(rec), width))
+			}
+			return rec, line, nil
+		}
+	}
+}
+
+// parseOccurrences is ParseOccurrences reading CSV quoting, or none when
+// plain (a tab-separated table only).
+func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Record, error) {
 	perr := func(line int, field string, err error) error {
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
+	// A table whose lines end in a carriage return alone (Excel's "CSV
+	// (Macintosh)", classic Mac OS) holds no line feed: its returns are
+	// read as line ends.
+	pr := bufio.NewReaderSize(r, 64<<10)
+	if head, _ := pr.Peek(64 << 10); bytes.IndexByte(head, '\n') < 0 && bytes.IndexByte(head, '\r') >= 0 {
+		r = crReader{pr}
+	} else {
+		r = pr
+	}
 	lim := newLimitedReader(r, name, MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
@@ -157,6 +261,10 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 	} else if len(b) >= 2 && ((b[0] == 0xFF && b[1] == 0xFE) || (b[0] == 0xFE && b[1] == 0xFF)) {
 		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-16 byte-order mark; "+
 			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
+	}
+	if head, _ := br.Peek(512); bytes.IndexByte(head, 0) >= 0 {
+		return nil, perr(0, "", fmt.Errorf("%w: it is a binary file%s, not a text table; "+
+			"give the occurrence table as CSV or tab-separated text (in a spreadsheet: save as \"CSV UTF-8\")", ErrEncoding, binaryKind(head)))
 	}
 
 	// Find the header line (the first non-blank one) to choose the delimiter.
@@ -182,7 +290,14 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 		return nil, perr(0, "", fmt.Errorf("%w: the file is empty; write a header line "+
 			"(for example lon,lat,role) and one line per occurrence below it", ErrNoRecords))
 	}
+	if t := bytes.TrimSpace(header); len(t) > 0 && (t[0] == '{' || t[0] == '[') {
+		return nil, perr(0, "", fmt.Errorf("%w: it is JSON (GeoJSON?), not a delimited table; write the points as CSV with their coordinates "+
+			"and a role column, e.g. ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv %s, then add role", ErrNoCoordinates, name))
+	}
 	delim := detectDelimiter(header)
+	if plain && delim == '\t' {
+		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
+	}
 
 	cr := csv.NewReader(io.MultiReader(bytes.NewReader(pre), br))
 	cr.Comma = delim
@@ -200,9 +315,13 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			if err != nil {
 				var pe *csv.ParseError
 				if errors.As(err, &pe) {
-					return nil, 0, perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
+					e := perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
+					if delim == '\t' && !plain && (errors.Is(pe.Err, csv.ErrBareQuote) || errors.Is(pe.Err, csv.ErrQuote)) {
+						e = &tabQuoteError{err: e, line: pe.Line}
+					}
+					return nil, 0, e
 				}
 				return nil, 0, tooLarge(err, perr, name)
 			}
@@ -213,7 +332,12 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 			return rec, line, nil
 		}
 	}
+	return readRecords(readRow, delim, perr, geographic)
+}
 
+// readRecords reads the header and the records from readRow, which returns
+// each non-blank row with its physical line number, and io.EOF at the end.
+func readRecords(readRow func() ([]string, int, error), delim rune, perr func(int, string, error) error, geographic bool) ([]Record, error) {
 	hdr, hdrLine, err := readRow()
 	if err == io.EOF {
 		return nil, perr(0, "", fmt.Errorf("%w: no header line found", ErrNoRecords))
@@ -301,6 +425,29 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 	return recs, nil
 }
 
+// binaryKind names the kind of binary file by its first bytes, as
+// " (a ... file)", or "" when it is not one a user is likely to give by
+// mistake.
+func binaryKind(head []byte) string {
+	for _, k := range []struct{ magic, what string }{
+		{"PK\x03\x04", "ZIP archive, such as an Excel .xlsx workbook or a zipped download"},
+		{"\x00\x00\x27\x0a", "shapefile: convert its points with ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv FILE.shp and add a role column"},
+		{"\xD0\xCF\x11\xE0", "legacy Excel .xls workbook"},
+		{"II*\x00", "TIFF image, such as a GeoTIFF raster"},
+		{"MM\x00*", "TIFF image, such as a GeoTIFF raster"},
+		{"II+\x00", "BigTIFF raster"},
+		{"MM\x00+", "BigTIFF raster"},
+		{"SQLite format 3\x00", "SQLite database, such as a GeoPackage"},
+		{"\x1f\x8b", "gzip archive"},
+		{"%PDF", "PDF document"},
+	} {
+		if bytes.HasPrefix(head, []byte(k.magic)) {
+			return " (a " + k.what + ")"
+		}
+	}
+	return ""
+}
+
 // tooLarge turns a size-limit error from the reader into a ParseError
 // naming the file, and wraps other read errors.
 func tooLarge(err error, perr func(int, string, error) error, name string) error {
@@ -383,11 +530,18 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 			*tg.dst = column{index: i, name: name}
 		}
 	}
-	seen := make([]string, len(hdr))
+	// At most 12 fields are quoted (a GBIF download has some 250), each
+	// cut as shown() cuts cells.
+	const maxFields = 12
+	var seen []string
 	for i, h := range hdr {
-		seen[i] = strings.TrimSpace(h)
+		if i == maxFields {
+			seen = append(seen, fmt.Sprintf("and %d more", len(hdr)-maxFields))
+			break
+		}
+		seen = append(seen, shown(strings.TrimSpace(h)))
 	}
-	foundHeader := fmt.Sprintf("the header read as %d %s-separated fields %q", len(hdr), delimiterName(delim), seen)
+	foundHeader := fmt.Sprintf("the header read as %d %s-separated fields [%s]", len(hdr), delimiterName(delim), strings.Join(seen, " "))
 	if !found[0] || !found[1] {
 		var missing string
 		switch {
@@ -448,10 +602,19 @@ func parseNumber(s string, decimalComma bool) (float64, error) {
 		return 0, errors.New("the cell is empty")
 	}
 	t := s
+	// The minus sign U+2212 (typography, word processors, some locales'
+	// spreadsheets) reads as the ASCII hyphen-minus it looks like.
+	if rest, ok := strings.CutPrefix(t, "\u2212"); ok {
+		t = "-" + rest
+	}
 	if decimalComma && strings.Count(t, ",") == 1 && !strings.Contains(t, ".") {
 		t = strings.Replace(t, ",", ".", 1)
 	}
 	if !isDecimal(t) {
+		if strings.ContainsAny(s, "°º'′\"″") || strings.ContainsAny(strings.ToUpper(strings.TrimRight(s, " ")), "NSEW") && strings.ContainsAny(s, "0123456789") {
+			return 0, fmt.Errorf("found %s, which looks like degrees, minutes and seconds or a hemisphere letter; "+
+				"convert it to signed decimal degrees (12°30'S is -12.5, 8°15'W is -8.25)", shown(s))
+		}
 		return 0, fmt.Errorf("found %s", shown(s))
 	}
 	v, err := strconv.ParseFloat(t, 64)

@@ -52,6 +52,9 @@ func okCases() []okCase {
 		{name: "utf8 bom", in: bom + "lon,lat,role\n1.5,2.5,train\n-3,4,test\n", geographic: true, want: twoRecs},
 		{name: "bom semicolon", in: bom + "lat;lon;role\n2,5;1,5;train\n4;-3;test\n", geographic: true, want: twoRecs},
 		{name: "crlf line ends", in: "lon,lat,role\r\n1.5,2.5,train\r\n-3,4,test\r\n", geographic: true, want: twoRecs},
+		{name: "carriage returns alone (CSV Macintosh)", in: "lon,lat,role\r1.5,2.5,train\r-3,4,test\r", geographic: true, want: twoRecs},
+		{name: "carriage returns alone, quoted cell and a blank line", in: "lon;lat;role;note\r1,5;2,5;train;\"a;b\"\r\r-3;4;test;c", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "no final newline", in: "lon,lat,role\n1.5,2.5,train\n-3,4,test", geographic: true, want: twoRecs},
 		{name: "spaces after commas", in: "lon, lat, role\n1.5, 2.5, train\n-3, 4, test\n", geographic: true, want: twoRecs},
 		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true, want: twoRecs},
@@ -65,6 +68,7 @@ func okCases() []okCase {
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "multi-line quoted cell", in: "lon,lat,role,note\n1.5,2.5,train,\"two\nlines\"\n-3,4,test,x\n", geographic: true,
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
+		{name: "minus sign U+2212", in: "lon;lat;role\n1,5;2,5;train\n\u22123;4;test\n", geographic: true, want: twoRecs},
 		{name: "number forms", in: "lon,lat,role\n+1.5,.25e1,train\n-3.,4E0,test\n", geographic: true, want: twoRecs},
 		{name: "longitude 0..360 and range edges", in: "lon,lat,role\n360,90,train\n-180,-90,test\n", geographic: true,
 			want: []Record{{2, 360, 90, vocab.RoleTrain}, {3, -180, -90, vocab.RoleTest}}},
@@ -73,6 +77,14 @@ func okCases() []okCase {
 		{name: "projected large latitude-like values not swapped", in: "lon,lat,role\n10,120,train\n20,-300,test\n", geographic: false,
 			want: []Record{{2, 10, 120, vocab.RoleTrain}, {3, 20, -300, vocab.RoleTest}}},
 		{name: "row longer than header", in: "lon,lat,role\n1.5,2.5,train,extra,cells\n-3,4,test\n", geographic: true, want: twoRecs},
+		// A GBIF download is tab-separated and quotes nothing: quotes in a
+		// locality are ordinary characters, even at the start of a cell.
+		{name: "tab GBIF bare quotes", in: "gbifID\tlocality\tdecimalLatitude\tdecimalLongitude\trole\n1\t5 km N of \"Big Rock\", 12\" stone\t2.5\t1.5\ttrain\n2\t\"Holotype\" site\t4\t-3\ttest\n", geographic: true, want: twoRecs},
+		{name: "tab GBIF cell opening a quote", in: "locality\tlat\tlon\trole\n\"Holotype site\t2.5\t1.5\ttrain\nx\t4\t-3\ttest\n", geographic: true, want: twoRecs},
+		{name: "tab R write.table escapes", in: "\"lon\"\t\"lat\"\t\"role\"\t\"note\"\n1.5\t2.5\t\"train\"\t\"a \\\"q\\\" b\"\n-3\t4\t\"test\"\tc\n", geographic: true, want: twoRecs},
+		{name: "tab CSV quoting with a tab in a cell", in: "lon\tlat\trole\tnote\n1.5\t2.5\ttrain\t\"a\tb \"\"c\"\"\"\n-3\t4\ttest\tc\n", geographic: true, want: twoRecs},
+		{name: "tab GBIF bare quotes CRLF", in: "lon\tlat\trole\tnote\r\n1.5\t2.5\ttrain\t12\"\r\n\r\n-3\t4\ttest\tc\r\n", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 	}...)
 	return cs
 }
@@ -109,6 +121,8 @@ func errCases() []errCase {
 		{name: "no longitude column", in: "lat,role\n1,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no longitude column"}},
 		{name: "unknown delimiter", in: "lon|lat|role\n1|2|train\n", is: ErrNoCoordinates, line: 1, contains: []string{"1 comma-separated fields", `"lon|lat|role"`, "semicolon or a tab"}},
 		{name: "header after blank lines", in: "\n\nid;name\n1;a\n", is: ErrNoCoordinates, line: 3, contains: []string{"semicolon-separated"}},
+		{name: "no role column in a wide header", in: "a1\ta2\ta3\ta4\ta5\ta6\ta7\ta8\ta9\ta10\ta11\ta12\ta13\tdecimalLatitude\tdecimalLongitude\n1\t2\t3\t4\t5\t6\t7\t8\t9\t10\t11\t12\t13\t1\t2\n", is: ErrNoRole, line: 1,
+			contains: []string{`15 tab-separated fields ["a1" "a2"`, `"a12" and 3 more]`, "add a column named role"}},
 		{name: "no role column", in: "lon,lat,set\n1,2,train\n", is: ErrNoRole, line: 1, contains: []string{`"set"`, "add a column named role", "train, training, test and testing"}},
 		{name: "two longitude columns", in: "x,lon,lat,role\n1,1,2,train\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"x" and "lon"`, "longitude", "rename or delete one"}},
 		{name: "two role columns", in: "lon,lat,role,ROLE\n1,2,train,test\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"role" and "ROLE"`}},
@@ -117,6 +131,8 @@ func errCases() []errCase {
 		{name: "NaN", in: "Longitude,Latitude,role\nNaN,2,train\n", is: ErrBadNumber, line: 2, field: "Longitude", contains: []string{`"NaN"`}},
 		{name: "Inf", in: "lon,lat,role\n1,-Inf,train\n", is: ErrBadNumber, line: 2, field: "lat", contains: []string{`"-Inf"`}},
 		{name: "overflow", in: "lon,lat,role\n1e999,1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{"out of range"}},
+		{name: "degrees minutes seconds", in: "lon,lat,role\n1,12°30'S,train\n", is: ErrBadNumber, line: 2, field: "lat", contains: []string{"degrees, minutes and seconds", "-12.5"}},
+		{name: "hemisphere letter", in: "lon;lat;role\n8.25 W;1;train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{"hemisphere letter"}},
 		{name: "hex", in: "lon,lat,role\n0x10,1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{`"0x10"`}},
 		{name: "two dots", in: "lon,lat,role\n12.5.3,1,train\n", is: ErrBadNumber, line: 2, field: "lon"},
 		{name: "decimal comma with comma delimiter", in: "lon,lat,role\n\"1,5\",1,train\n", is: ErrBadNumber, line: 2, field: "lon", contains: []string{`"1,5"`, "dot as decimal separator"}},
@@ -126,8 +142,18 @@ func errCases() []errCase {
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
+		{name: "tab bare quote and a quoted tab", in: "note\tlon\tlat\trole\na\"b\t1\t2\ttrain\n\"x\ty\"\t3\t4\ttest\n", is: ErrMalformed, line: 3,
+			contains: []string{"5 tab-separated cells but the header 4", "line 2 is not valid CSV quoting"}},
+		{name: "tab bare quote then a bad number", in: "lon\tlat\trole\tnote\n1\t2\ttrain\ta\"b\n3\tabc\ttest\tc\n", is: ErrBadNumber, line: 3, field: "lat",
+			contains: []string{`"abc"`, "quotes as ordinary characters", "line 2 is not valid CSV quoting"}},
 		{name: "utf16 le", in: "\xFF\xFEl\x00o\x00n\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-16", "CSV UTF-8"}},
 		{name: "utf16 be", in: "\xFE\xFF\x00l\x00o", is: ErrEncoding, line: 1},
+		{name: "GeoTIFF", in: "II*\x00\b\x00\x00\x00\x14\x00\x00\x01\x03\x00,x", is: ErrEncoding, contains: []string{"binary file", "GeoTIFF", "CSV"}},
+		{name: "Excel workbook", in: "PK\x03\x04\x14\x00\x06\x00lon,lat,role", is: ErrEncoding, contains: []string{"Excel .xlsx", "CSV UTF-8"}},
+		{name: "shapefile", in: "\x00\x00\x27\x0a\x00\x00", is: ErrEncoding, contains: []string{"shapefile", "ogr2ogr -f CSV"}},
+		{name: "GeoJSON", in: "\n{\"type\": \"FeatureCollection\",\n\"features\": []}\n", is: ErrNoCoordinates, contains: []string{"JSON (GeoJSON?)", "GEOMETRY=AS_XY"}},
+		{name: "GeoPackage", in: "SQLite format 3\x00\x10\x00", is: ErrEncoding, contains: []string{"GeoPackage"}},
+		{name: "NUL bytes after a text header", in: "lon,lat,role\n1,2,train\x00\x00\n", is: ErrEncoding, contains: []string{"binary file, not a text table"}},
 		{name: "empty file", in: "", is: ErrNoRecords, contains: []string{"file is empty", "header line"}},
 		{name: "blank file", in: "\n  \n\r\n", is: ErrNoRecords, contains: []string{"file is empty"}},
 		{name: "bom only", in: bom, is: ErrNoRecords},
@@ -220,6 +246,19 @@ func TestReadOccurrencesFile(t *testing.T) {
 	}
 	t.Run("good", func(t *testing.T) {
 		got, err := ReadOccurrences(good, true)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(got, twoRecs) {
+			t.Fatalf("got %+v want %+v", got, twoRecs)
+		}
+	})
+	t.Run("GBIF download with bare quotes", func(t *testing.T) {
+		gbif := filepath.Join(dir, "occurrence.txt")
+		if err := os.WriteFile(gbif, []byte("gbifID\tlocality\tdecimalLatitude\tdecimalLongitude\trole\n1\t\"Big Rock\" 5 km N\t2.5\t1.5\ttrain\n2\t12\" stone\t4\t-3\ttest\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		got, err := ReadOccurrences(gbif, true)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -336,5 +375,29 @@ func BenchmarkParseOccurrences(b *testing.B) {
 				}
 			}
 		})
+	}
+}
+
+// TestCarriageReturnsOnlyLargeTable: a table over MaxLineBytes whose lines
+// end in carriage returns alone reads line by line (no "line longer than"
+// refusal), with physical line numbers.
+func TestCarriageReturnsOnlyLargeTable(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("lon,lat,role\r")
+	n := 0
+	for b.Len() <= MaxLineBytes+1000 {
+		role := "train"
+		if n%2 == 1 {
+			role = "test"
+		}
+		fmt.Fprintf(&b, "%d.25,%d.5,%s\r", n%170, n%80, role)
+		n++
+	}
+	recs, err := ParseOccurrences(strings.NewReader(b.String()), "mac.csv", true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != n || recs[n-1].Line != n+1 || recs[n-1].X != float64((n-1)%170)+0.25 {
+		t.Fatalf("%d records, last %+v; want %d, the last on line %d", len(recs), recs[len(recs)-1], n, n+1)
 	}
 }

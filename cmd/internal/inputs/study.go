@@ -90,7 +90,34 @@ func LoadStudy(path string) (*Study, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
 	}
+	if line, msg := notUTF8(data); line > 0 {
+		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: %s", ErrStudySyntax, msg)}
+	}
+	if line := tableHeader(data); line > 0 {
+		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: this is a study table (a header id,... and one row per study), not a study file; "+
+			"run it with areasweep batch %s --out DIR", ErrStudySyntax, path)}
+	}
 	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))
+}
+
+// tableHeader returns the line of a study table's header (the first line
+// that is neither blank nor a '#' comment, starting with id and a comma,
+// semicolon or tab), or 0: a table given to --study.
+func tableHeader(data []byte) int {
+	for i, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		l = strings.TrimSpace(l)
+		if l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		l = strings.ToLower(strings.Trim(l, `"`))
+		if rest, ok := strings.CutPrefix(l, "id"); ok {
+			if rest = strings.TrimLeft(rest, `"`); rest != "" && strings.ContainsRune(",;\t", rune(rest[0])) {
+				return i + 1
+			}
+		}
+		return 0
+	}
+	return 0
 }
 
 // ParseStudy reads a study file from r; name is used in messages and
@@ -296,9 +323,17 @@ func pathValue(key string, v *yaml.Node, dir string) (*string, error) {
 	return &p, nil
 }
 
-// resolvePath joins a relative path to dir. Absolute paths, URLs and GDAL
-// virtual paths (/vsi...) are returned unchanged.
+// resolvePath joins a relative path to dir. A path starting with ~/ is
+// in the home folder, as a shell would read it (a study file or table is
+// not read by a shell, and a folder named ~ beside it is never meant).
+// Absolute paths, URLs and GDAL virtual paths (/vsi...) are returned
+// unchanged.
 func resolvePath(dir, p string) string {
+	if p == "~" || strings.HasPrefix(p, "~/") {
+		if home, err := os.UserHomeDir(); err == nil {
+			return filepath.Join(home, p[1:])
+		}
+	}
 	if dir == "" || p == "" || filepath.IsAbs(p) || strings.Contains(p, "://") || strings.HasPrefix(p, "/vsi") {
 		return p
 	}
@@ -435,11 +470,16 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 // mapping NAME: PATH (kept in file order). Paths are resolved against dir.
 func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
 	example := fmt.Sprintf("write for example\n    %s:\n      - gbm=models/gbm.tif\n      - glm=models/glm.tif", key)
+	seen := map[string]int{}
 	one := func(n *yaml.Node, text string) (string, error) {
 		name, p, err := ParseNamedPath(text)
 		if err != nil {
 			return "", &lineErr{n.Line, fmt.Errorf("%w: %w", ErrBadValue, noPrefix{err})}
 		}
+		if first, dup := seen[name]; dup {
+			return "", &lineErr{n.Line, badValue("the name %q is already given at line %d; give each its own name", name, first)}
+		}
+		seen[name] = n.Line
 		return name + "=" + resolvePath(dir, p), nil
 	}
 	switch v.Kind {

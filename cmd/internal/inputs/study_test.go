@@ -152,6 +152,8 @@ func TestParseStudyErrors(t *testing.T) {
 		{"unknown key no suggestion", "colour: red\n", ErrUnknownKey, 1, "colour", []string{"allowed keys are"}},
 		{"unknown key case", "Seed: 1\n", ErrUnknownKey, 1, "Seed", []string{`did you mean "seed"?`}},
 		{"duplicate key", "seed: 1\nout: o\nseed: 2\n", ErrDuplicateKey, 3, "seed", []string{"already given at line 1"}},
+		{"model name twice in a mapping", "model:\n  good: a.tif\n  good: b.tif\n", ErrBadValue, 3, "model", []string{`the name "good" is already given at line 2`}},
+		{"model name twice in a list", "model: [good=a.tif, coarse=c.tif,\n  good=b.tif]\n", ErrBadValue, 2, "model", []string{`"good" is already given at line 1`}},
 		{"text for int", "iterations: many\n", ErrBadValue, 1, "iterations", []string{`"many" is not a whole number`, "iterations: 1000"}},
 		{"quoted int", "iterations: \"1000\"\n", ErrBadValue, 1, "iterations", []string{"(remove the quotes)"}},
 		{"quoted bool", "no-thin: 'true'\n", ErrBadValue, 1, "no-thin", []string{"(remove the quotes)"}},
@@ -265,6 +267,55 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 	}
 
+	t.Run("tilde is the home folder", func(t *testing.T) {
+		home := t.TempDir()
+		t.Setenv("HOME", home)
+		p := filepath.Join(sub, "home.yaml")
+		if err := os.WriteFile(p, []byte("occurrences: ~/data/occ.csv\nmodel:\n  m: ~/m.tif\nout: ~\nregion: ./~x/r.gpkg\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		st, err := LoadStudy(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := &Study{
+			"occurrences": filepath.Join(home, "data", "occ.csv"),
+			"model":       []string{"m=" + filepath.Join(home, "m.tif")},
+			"region":      filepath.Join(sub, "~x", "r.gpkg"),
+		}
+		// out: ~ is YAML's null: absent.
+		if !reflect.DeepEqual(st, want) {
+			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
+		}
+	})
+	t.Run("a study table given as a study file", func(t *testing.T) {
+		for i, body := range []string{"# iterations: 5\nid,model,occurrences,region\na,m=x.tif,o.csv,r.gpkg\n", "\ufeff\"id\";\"model\"\n"} {
+			p := filepath.Join(sub, fmt.Sprintf("table%d.csv", i))
+			os.WriteFile(p, []byte(body), 0o644)
+			_, err := LoadStudy(p)
+			checkStudyError(t, err, ErrStudySyntax, p, 2-i, "", []string{"this is a study table", "areasweep batch " + p})
+		}
+		p := filepath.Join(sub, "id.yaml")
+		os.WriteFile(p, []byte("id: 5\n"), 0o644)
+		if _, err := LoadStudy(p); !errors.Is(err, ErrUnknownKey) {
+			t.Errorf("a study file with the key id: %v, want an unknown key", err)
+		}
+	})
+	t.Run("not UTF-8", func(t *testing.T) {
+		latin1 := filepath.Join(sub, "latin1.yaml")
+		os.WriteFile(latin1, []byte("iterations: 10\n# \xe9tude\n"), 0o644)
+		_, err := LoadStudy(latin1)
+		checkStudyError(t, err, ErrStudySyntax, latin1, 2, "", []string{"0xE9 is not UTF-8", "save the file as UTF-8"})
+		utf16 := filepath.Join(sub, "utf16.yaml")
+		os.WriteFile(utf16, []byte("\xff\xfei\x00t\x00"), 0o644)
+		_, err = LoadStudy(utf16)
+		checkStudyError(t, err, ErrStudySyntax, utf16, 1, "", []string{"UTF-16", "save it as UTF-8"})
+		table := filepath.Join(sub, "latin1.csv")
+		os.WriteFile(table, []byte("id,model,occurrences,region\n\xe9,m=x.tif,o.csv,r.gpkg\n"), 0o644)
+		if _, err := LoadBatch(table); !errors.Is(err, ErrBatchSyntax) || !strings.Contains(err.Error(), "line 2") || !strings.Contains(err.Error(), "0xE9") {
+			t.Errorf("LoadBatch of a Latin-1 table: %v", err)
+		}
+	})
 	t.Run("error names path", func(t *testing.T) {
 		bad := filepath.Join(sub, "bad.yaml")
 		if err := os.WriteFile(bad, []byte("iterations: 10\nbogus: 1\n"), 0o644); err != nil {

@@ -14,6 +14,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -77,8 +79,10 @@ type Dir struct {
 	force   bool
 	lock    *os.File
 	created []string // parent folders this run made, deepest first
-	mu      sync.Mutex
-	done    bool
+	// demoInputs are the names of the files the demo writes into inputs/.
+	demoInputs []string
+	mu         sync.Mutex
+	done       bool
 }
 
 // active are the output directories of runs in progress, for the signal
@@ -99,10 +103,84 @@ func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
 // Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
 func Open(out string, force bool, inputs []string) (*Dir, error) {
+	return open(out, force, inputs, false, nil, false)
+}
+
+// OpenShard is Open for a shard's run, which replaces only its own
+// partial file and log (Dir.Shard), whatever else --out holds.
+func OpenShard(out string, force bool, inputs []string) (*Dir, error) {
+	return open(out, force, inputs, false, nil, true)
+}
+
+// OpenDemo is Open for the demo, whose inputs/ folder is an output entry
+// too: --force replaces it, so it may hold only the demo's own files.
+func OpenDemo(out string, force bool, inputFiles []string) (*Dir, error) {
+	return open(out, force, nil, true, inputFiles, false)
+}
+
+// figureName matches the files the report writes into figures/, and the
+// hidden temporary files of an atomic write (package outfile) that a
+// killed report can leave.
+var figureName = regexp.MustCompile(`^((metrics_vs_area|roc_curves|extent_maps|model_minus_null|ring_steps(_[0-9]+)?)\.(pdf|svg|png)|\..+\.tmp-[0-9]+)$`)
+
+// foreign lists, as paths under --out, what the folders among names hold
+// that areasweep does not write there: in figures/ a name figureName does
+// not match, in the demo's inputs/ a name not among its files, and any
+// sub-folder, and a file where areasweep writes that folder. --force
+// replaces such a folder as a whole, so these would be deleted with it. staged, when not "", is the staging folder: an entry
+// the staged folder of the same name holds is areasweep's too.
+func (d *Dir) foreign(names []string, staged string) []string {
+	var found []string
+	for _, n := range names {
+		if n != "figures" && !(n == "inputs" && d.Demo) {
+			continue
+		}
+		if st, err := os.Lstat(filepath.Join(d.abs, n)); err == nil && !st.IsDir() {
+			found = append(found, filepath.Join(d.Out, n)) // areasweep writes a folder there
+			continue
+		}
+		entries, err := os.ReadDir(filepath.Join(d.abs, n))
+		if err != nil {
+			continue // absent
+		}
+		for _, e := range entries {
+			ours := !e.IsDir()
+			if ours && n == "figures" {
+				ours = figureName.MatchString(e.Name())
+			} else if ours {
+				ours = slices.Contains(d.demoInputs, e.Name())
+			}
+			if !ours && staged != "" {
+				if st, err := os.Lstat(filepath.Join(staged, n, e.Name())); err == nil && !st.IsDir() && !e.IsDir() {
+					ours = true
+				}
+			}
+			if !ours {
+				found = append(found, filepath.Join(d.Out, n, e.Name()))
+			}
+		}
+	}
+	return found
+}
+
+// foreignError is the message for foreign files in a folder --force
+// would replace.
+func foreignError(out string, found []string) error {
+	more := ""
+	if len(found) > 3 {
+		more = fmt.Sprintf(" and %d more", len(found)-3)
+		found = found[:3]
+	}
+	dir := filepath.Dir(found[0])
+	return fmt.Errorf("--out %s holds %s%s, not written by areasweep, in %s, which --force replaces as a whole; "+
+		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
+}
+
+func open(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, error) {
 	if out == "" {
 		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
-	d := &Dir{Out: filepath.Clean(out), force: force}
+	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
 		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
@@ -127,6 +205,9 @@ func Open(out string, force bool, inputs []string) (*Dir, error) {
 		}
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
+		}
+		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
+			return nil, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
@@ -230,6 +311,8 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 		case within(dir, outAbs):
 			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
 				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+		case outAbs == a:
+			return fault.BadInput(fmt.Errorf("--out %s is the input file %s; name a folder for the results", out, in))
 		case within(outAbs, a):
 			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
 		}
@@ -446,6 +529,15 @@ func (d *Dir) moveEntries() error {
 		for _, e := range staged {
 			replace = append(replace, e.Name())
 		}
+	}
+	// A file of the user's that reached a folder replaced as a whole
+	// during the run: nothing is replaced, as for a clash.
+	if found := d.foreign(replace, d.Stage); len(found) > 0 {
+		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		if err := os.Rename(d.Stage, keep); err != nil {
+			keep = d.Stage
+		}
+		return fmt.Errorf("%s, so nothing in it was replaced; the results are in %s", foreignError(d.Out, found), keep)
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err != nil {

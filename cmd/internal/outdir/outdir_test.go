@@ -82,7 +82,7 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 	t.Run("force replaces only areasweep's files", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
 		os.MkdirAll(filepath.Join(out, "figures"), 0o755)
-		os.WriteFile(filepath.Join(out, "figures", "old.svg"), []byte("old"), 0o644)
+		os.WriteFile(filepath.Join(out, "figures", "ring_steps_7.svg"), []byte("old"), 0o644)
 		os.WriteFile(filepath.Join(out, "extents.tif"), []byte("old"), 0o644)
 		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
 		d, err := Open(out, true, nil)
@@ -96,13 +96,115 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 		if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
 			t.Error("--force deleted a file areasweep does not write")
 		}
-		for _, gone := range []string{"figures/old.svg", "extents.tif"} {
+		for _, gone := range []string{"figures/ring_steps_7.svg", "extents.tif"} {
 			if _, err := os.Stat(filepath.Join(out, gone)); err == nil {
 				t.Errorf("old %s kept next to the new results", gone)
 			}
 		}
 		if l := leftovers(filepath.Dir(out)); len(l) > 0 {
 			t.Errorf("left behind: %v", l)
+		}
+	})
+}
+
+// TestForceKeepsOthersFilesInReplacedFolders: --force replaces figures/
+// (and the demo's inputs/) as a whole, so a file of the user's in it is
+// refused before anything is written (exit 2) and, when it appears
+// during the run, stops the move with the results kept beside --out.
+func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
+	mine := func(t *testing.T, p string) {
+		t.Helper()
+		os.MkdirAll(filepath.Dir(p), 0o755)
+		if err := os.WriteFile(p, []byte("mine"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	kept := func(t *testing.T, p string) {
+		t.Helper()
+		if b, _ := os.ReadFile(p); string(b) != "mine" {
+			t.Errorf("%s was deleted or changed", p)
+		}
+	}
+	cases := []struct {
+		name, file string
+		demo       bool
+	}{
+		{"own figure", "figures/my_figure.png", false},
+		{"figure name with another extension", "figures/roc_curves.eps", false},
+		{"sub-folder of figures", "figures/drafts/a.svg", false},
+		{"notes in the demo's inputs", "inputs/notes.txt", true},
+		{"a file named figures", "figures", false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out := filepath.Join(t.TempDir(), "res")
+			mine(t, filepath.Join(out, c.file))
+			if c.file != "figures" {
+				mine(t, filepath.Join(out, "figures", "roc_curves.svg"))
+			}
+			open := func() (*Dir, error) { return Open(out, true, nil) }
+			if c.demo {
+				open = func() (*Dir, error) { return OpenDemo(out, true, []string{"study.yaml"}) }
+			}
+			_, err := open()
+			if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), filepath.Join(out, strings.Split(c.file, "/")[0])) {
+				t.Fatalf("Open = %v, want an input error naming the file", err)
+			}
+			kept(t, filepath.Join(out, c.file))
+			if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+			}
+		})
+	}
+	t.Run("a shard leaves figures/ alone", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		mine(t, filepath.Join(out, "figures", "my_figure.png"))
+		d, err := OpenShard(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(filepath.Join(d.Stage, "shard-1-of-2.aspf"), []byte("x"), 0o644)
+		if err := d.Finish(); err != nil {
+			t.Fatal(err)
+		}
+		kept(t, filepath.Join(out, "figures", "my_figure.png"))
+	})
+	t.Run("areasweep's own names pass", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		for _, n := range []string{"figures/ring_steps_12.pdf", "figures/model_minus_null.png", "figures/.extent_maps.svg.tmp-12345", "inputs/notes.txt"} {
+			mine(t, filepath.Join(out, n))
+		}
+		d, err := Open(out, true, nil) // not the demo: inputs/ is not replaced
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.MkdirAll(filepath.Join(d.Stage, "figures"), 0o755)
+		if err := d.Finish(); err != nil {
+			t.Fatal(err)
+		}
+		kept(t, filepath.Join(out, "inputs/notes.txt"))
+		if _, err := os.Stat(filepath.Join(out, "figures/ring_steps_12.pdf")); err == nil {
+			t.Error("an old figure page was kept beside the new figures")
+		}
+	})
+	t.Run("file appears during the run", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		mine(t, filepath.Join(out, "figures", "roc_curves.svg"))
+		d, err := Open(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.MkdirAll(filepath.Join(d.Stage, "figures"), 0o755)
+		os.WriteFile(filepath.Join(d.Stage, "figures", "roc_curves.svg"), []byte("new"), 0o644)
+		mine(t, filepath.Join(out, "figures", "sketch.png"))
+		err = d.Finish()
+		if err == nil || fault.IsBadInput(err) || !strings.Contains(err.Error(), "sketch.png") {
+			t.Fatalf("Finish = %v, want a failure naming the file", err)
+		}
+		kept(t, filepath.Join(out, "figures", "sketch.png"))
+		keep := out + ".results-" + strconv.Itoa(os.Getpid())
+		if b, _ := os.ReadFile(filepath.Join(keep, "figures", "roc_curves.svg")); string(b) != "new" {
+			t.Errorf("results not kept in %s", keep)
 		}
 	})
 }

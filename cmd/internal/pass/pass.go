@@ -77,7 +77,7 @@ type gdalSource struct {
 }
 
 func openGDALSource(path string) (Source, error) {
-	ds, err := godal.Open(path, godal.RasterOnly())
+	ds, err := extent.OpenRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}
@@ -111,7 +111,7 @@ func (s *gdalSource) Close() error { return s.ds.Close() }
 // Open opens the first band of the raster at path.
 func Open(path string) (*Raster, error) {
 	extent.Register()
-	ds, err := godal.Open(path, godal.RasterOnly())
+	ds, err := extent.OpenRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("pass: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
 	}

@@ -70,6 +70,18 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	o := Options{Values: settings.Values{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers}, Version: mo.Version,
 		ExpectInputs: first.Inputs, MoreInputs: files}
 	rec.apply(&o)
+	// The shards record the input paths as they were given: a relative
+	// one is relative to the folder shard 1 ran in.
+	for _, p := range o.InputPaths() {
+		if p == "" || filepath.IsAbs(p) {
+			continue
+		}
+		if _, err := os.Stat(p); err != nil {
+			here, _ := os.Getwd()
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
+				"run the merge from that folder, or run the shards again with absolute paths", first.Source, p, here))
+		}
+	}
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
 		return nil, err

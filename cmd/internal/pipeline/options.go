@@ -18,6 +18,9 @@ type Options struct {
 
 	// ExtentsOnly stops after building and exporting the family.
 	ExtentsOnly bool
+	// Shard marks a shard's run (set by RunShard): its output folder is
+	// opened with outdir.OpenShard.
+	Shard bool
 
 	// InputsDir, when set, is a directory of generated inputs (the demo's)
 	// that is moved into Out/inputs with the results; input paths are

@@ -128,7 +128,11 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	}
 	if s.dir == nil {
 		var err error
-		if s.dir, err = outdir.Open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
+		open := outdir.Open
+		if o.Shard {
+			open = outdir.OpenShard
+		}
+		if s.dir, err = open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
 			s.Close() // the first model's raster
 			return nil, err
 		}

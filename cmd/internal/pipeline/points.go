@@ -8,7 +8,10 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
+	"regexp"
 	"runtime"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -16,8 +19,10 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
+	"areasweep/extent/gdalmsg"
 	"areasweep/extent/place"
 	"areasweep/extent/vocab"
 	"areasweep/report"
@@ -66,7 +71,25 @@ func (s *Study) openGrid() error {
 	for i, m := range s.models {
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
+			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
+				// gdal_edit.py records the CRS of other formats in an
+				// .aux.xml file, which areasweep does not read.
+				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + m.Path + " " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".tif"
+				if ext == ".asc" {
+					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
+				}
+				return fault.BadInput(fmt.Errorf("model %s: %s has no coordinate reference system; %s", m.Name, m.Path, hint))
+			}
+			if v, verr := godal.Open(m.Path, godal.VectorOnly()); verr == nil {
+				v.Close()
+				return fault.BadInput(fmt.Errorf("model %s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the model's raster (GeoTIFF or any raster GDAL reads)", m.Name, m.Path))
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+		}
+		if msg := maskProblem(m.Path); msg != "" {
+			g.Close()
+			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
+				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, m.Path, strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif"))
 		}
 		if i == 0 {
 			s.grid = g
@@ -84,13 +107,80 @@ func (s *Study) openGrid() error {
 	return nil
 }
 
+// maskProblem says how the first band of the raster at path marks cells
+// without data other than by a nodata value (an alpha band, a .msk file
+// or an internal mask, as gdalwarp -dstalpha and some exports write
+// them), or "" when it does not: GDAL's mask flags are then all-valid or
+// nodata.
+func maskProblem(path string) string {
+	ds, err := extent.OpenRaster(path)
+	if err != nil {
+		return "" // OpenGrid has read it; a later read reports its own error
+	}
+	defer ds.Close()
+	bands := ds.Bands()
+	if len(bands) == 0 {
+		return ""
+	}
+	const allValid, alpha, nodata = 0x01, 0x04, 0x08 // GMF_ALL_VALID, GMF_ALPHA, GMF_NODATA
+	f := bands[0].MaskFlags()
+	if f&nodata != 0 {
+		return "" // a nodata value: areasweep's own rule
+	}
+	// GDAL takes only a Byte or UInt16 alpha band as the mask; gdalwarp
+	// -dstalpha writes a Float32 raster's alpha as Float32.
+	for _, b := range bands[1:] {
+		if b.ColorInterp() == godal.CIAlpha {
+			return "marks its cells without data by an alpha band"
+		}
+	}
+	switch {
+	case f&allValid != 0:
+		return ""
+	case f&alpha != 0:
+		return "marks its cells without data by an alpha band"
+	default:
+		return "marks its cells without data by a mask (a .msk file or a mask inside the file)"
+	}
+}
+
+// crsAdvice says how to write a CRS, suggesting EPSG:N for a bare number.
+func crsAdvice(crs string) string {
+	if _, err := strconv.ParseUint(strings.TrimSpace(crs), 10, 32); err == nil {
+		return fmt.Sprintf("an EPSG code is written with its authority: EPSG:%s", strings.TrimSpace(crs))
+	}
+	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
+}
+
+// namedItem finds a second NAME=PATH item inside a path: a list written
+// with commas in one --model, --null or --extra flag.
+var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
+
 func mustExist(what, path string) error {
+	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
+			"download or unzip the file and give its path", what, path))
+	}
 	st, err := os.Stat(path)
 	if err != nil {
+		if strings.Contains(what, " ") && namedItem.MatchString(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: several NAME=PATH items were given in one flag; "+
+				"give each its own flag (--model a=x.tif --model b=y.tif) or, in a study file, a list", what, path))
+		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+	}
+	if st.Mode().IsRegular() {
+		f, err := os.Open(path)
+		if err != nil {
+			return fault.BadInput(fmt.Errorf("%s: %s cannot be read (%w); check the file's permissions", what, path, outdir.Cause(err)))
+		}
+		f.Close()
+	}
+	if st.Mode().IsRegular() && st.Size() == 0 && what != "occurrences" { // the table reader says what an empty table needs
+		return fault.BadInput(fmt.Errorf("%s: %s is empty (0 bytes); it was probably cut off while being written, copied or downloaded: give the complete file", what, path))
 	}
 	return nil
 }
@@ -114,7 +204,14 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	if o.OccurrencesCRS != "" {
 		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
 		if err != nil {
-			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows: %w", o.OccurrencesCRS, err))
+			cause := gdalmsg.Cause(err.Error())
+			if strings.Contains(cause, "ogr error") { // OGRERR_UNSUPPORTED_SRS's number says nothing more
+				cause = ""
+			} else {
+				cause = " (" + cause + ")"
+			}
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows%s; %s",
+				o.OccurrencesCRS, cause, crsAdvice(o.OccurrencesCRS)))
 		}
 		geographic = sr.Geographic()
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)

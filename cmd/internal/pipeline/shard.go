@@ -133,6 +133,7 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 	if n < 1 || i < 1 || i > n {
 		return fault.BadInput(fmt.Errorf("--shard %d/%d: give I/N with 1 <= I <= N", i, n))
 	}
+	o.Shard = true
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
 		return err

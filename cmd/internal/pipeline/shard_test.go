@@ -21,6 +21,7 @@ var notRecorded = map[string]string{
 	"Version":      "compared on its own (ShardHeader.Tool)",
 	"ExpectInputs": "set by the merge from the shards' headers",
 	"MoreInputs":   "set by the merge (the partial files)",
+	"Shard":        "set by RunShard for the shard's own output folder; a merge is no shard",
 }
 
 // TestRecordedRunCoversOptions: every field of Options is either recorded

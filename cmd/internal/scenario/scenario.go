@@ -27,6 +27,11 @@ const (
 	ecoregionField = "unit_id"
 )
 
+// FileNames are the names of the files Write creates in its folder.
+func FileNames() []string {
+	return []string{fileGood, fileCoarse, fileOccurrences, fileRegion, fileEcoregions, fileStudy}
+}
+
 // Files lists what Write produced (absolute paths).
 type Files struct {
 	// Dir is the scenario directory.

@@ -1,0 +1,195 @@
+package extent
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// TestRegionIn3DOrCurved: polygons with Z or M coordinates (a KML with
+// altitudes, a PolygonZ shapefile) and curved types (CurvePolygon,
+// MultiSurface, as ArcGIS exports write them) are read as their plane,
+// linear equivalent: the same cells as the plain 2D polygon, and for a
+// true arc a disc of about the right number of cells.
+func TestRegionIn3DOrCurved(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	cells := func(t *testing.T, path string) int {
+		t.Helper()
+		s, _, err := ReadShape(path, g)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := 0
+		Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+		return n
+	}
+	gpkg := func(name string, wkts ...string) string {
+		p := filepath.Join(dir, name)
+		ds, err := godal.CreateVector(godal.GeoPackage, p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sr, _ := godal.NewSpatialRefFromEPSG(4326)
+		l, err := ds.CreateLayer("region", sr, godal.GTUnknown)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, w := range wkts {
+			geom, err := godal.NewGeometryFromWKT(w, sr)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, err := l.NewFeature(geom); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	square := "0.55 0.55, 3.05 0.55, 3.05 2.95, 0.55 2.95, 0.55 0.55"
+	plain := filepath.Join(dir, "plain.geojson")
+	os.WriteFile(plain, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.55,0.55],[3.05,0.55],[3.05,2.95],[0.55,2.95],[0.55,0.55]]]}}]}`), 0o644)
+	want := cells(t, plain)
+	z := filepath.Join(dir, "z.geojson")
+	os.WriteFile(z, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.55,0.55,120],[3.05,0.55,80],[3.05,2.95,0],[0.55,2.95,5],[0.55,0.55,120]]]}}]}`), 0o644)
+	for name, path := range map[string]string{
+		"GeoJSON with heights":  z,
+		"PolygonZ":              gpkg("z.gpkg", "POLYGON Z (("+"0.55 0.55 1, 3.05 0.55 2, 3.05 2.95 3, 0.55 2.95 4, 0.55 0.55 1"+"))"),
+		"PolygonM":              gpkg("m.gpkg", "POLYGON M (("+"0.55 0.55 1, 3.05 0.55 2, 3.05 2.95 3, 0.55 2.95 4, 0.55 0.55 1"+"))"),
+		"MultiSurface":          gpkg("ms.gpkg", "MULTISURFACE ((("+square+")))"),
+		"CurvePolygon of lines": gpkg("cp.gpkg", "CURVEPOLYGON (("+square+"))"),
+	} {
+		t.Run(name, func(t *testing.T) {
+			if got := cells(t, path); got != want {
+				t.Errorf("%d cells, want %d as for the 2D polygon", got, want)
+			}
+		})
+	}
+	t.Run("CurvePolygon of arcs", func(t *testing.T) {
+		// A circle of radius 1.5 degrees about (2, 2): pi r^2 / 0.01 =
+		// 707 cells of 0.1 degree; the edge cells decide within a few
+		// per cent.
+		n := cells(t, gpkg("arc.gpkg", "CURVEPOLYGON (CIRCULARSTRING (0.5 2, 3.5 2, 0.5 2))"))
+		if want := math.Pi * 1.5 * 1.5 / 0.01; math.Abs(float64(n)-want) > 0.03*want {
+			t.Errorf("%d cells, want about %.0f", n, want)
+		}
+	})
+}
+
+// TestPolygonLayerAfterOthers: of a GeoPackage whose first layer holds
+// points, the first polygon layer is read (with a warning naming it),
+// its invalid feature repaired in that layer, not in the first.
+func TestPolygonLayerAfterOthers(t *testing.T) {
+	Register()
+	p := filepath.Join(t.TempDir(), "study.gpkg")
+	ds, err := godal.CreateVector(godal.GeoPackage, p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr, _ := godal.NewSpatialRefFromEPSG(4326)
+	for _, l := range []struct {
+		name string
+		typ  godal.GeometryType
+		wkt  string
+	}{
+		{"a_points", godal.GTPoint, "POINT (1 1)"},
+		{"b_lines", godal.GTLineString, "LINESTRING (1 1, 2 2)"},
+		// A bow-tie: invalid, repaired into two triangles.
+		{"c_region", godal.GTPolygon, "POLYGON ((0.55 0.55, 3.05 2.95, 3.05 0.55, 0.55 2.95, 0.55 0.55))"},
+	} {
+		lay, err := ds.CreateLayer(l.name, sr, l.typ)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g, _ := godal.NewGeometryFromWKT(l.wkt, sr)
+		if _, err := lay.NewFeature(g); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	s, warns, err := ReadShape(p, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+	if n == 0 {
+		t.Error("the region holds no cell")
+	}
+	named := false
+	for _, w := range warns {
+		named = named || strings.Contains(w, `"c_region"`) && strings.Contains(w, "a_points, b_lines, c_region")
+	}
+	if !named {
+		t.Errorf("no warning names the layer read and the others: %q", warns)
+	}
+}
+
+// TestUnitFieldIgnoresCase: the ecoregion id field is found whatever its
+// case when only one field has that name ignoring case (a shapefile's DBF
+// holds ID, typed id), and refused with the list of fields otherwise.
+func TestUnitFieldIgnoresCase(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	path := writeGeoJSON(t, dir, "units.geojson", []string{"a", "b"}, [][][2]float64{
+		{{0.5, 0.5}, {1.5, 0.5}, {1.5, 1.5}, {0.5, 1.5}, {0.5, 0.5}},
+		{{2.5, 2.5}, {3.5, 2.5}, {3.5, 3.5}, {2.5, 3.5}, {2.5, 2.5}},
+	})
+	units, _, err := ReadUnits(path, "ID", g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(units) != 2 || units[0].ID != "a" || units[1].ID != "b" {
+		t.Errorf("units %v, want a and b", units)
+	}
+	if _, _, err := ReadUnits(path, "name", g); err == nil || !strings.Contains(err.Error(), `no field "name"`) {
+		t.Errorf("a field no name matches: %v", err)
+	}
+}
+
+// TestLatin1UnitIDs: a shapefile whose DBF text is Latin-1 and which has
+// no .cpg (older shapefiles) gives its unit ids as the Latin-1 letters,
+// so that Zoë and Zoé are two readable ids in every output.
+func TestLatin1UnitIDs(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	src := writeGeoJSON(t, dir, "units.geojson", []string{"Zoë", "Zoé"}, [][][2]float64{
+		{{0.5, 0.5}, {1.5, 0.5}, {1.5, 1.5}, {0.5, 1.5}, {0.5, 0.5}},
+		{{2.5, 2.5}, {3.5, 2.5}, {3.5, 3.5}, {2.5, 3.5}, {2.5, 2.5}},
+	})
+	ds, err := godal.Open(src, godal.VectorOnly())
+	if err != nil {
+		t.Fatal(err)
+	}
+	shp := filepath.Join(dir, "units.shp")
+	out, err := ds.VectorTranslate(shp, []string{"-f", "ESRI Shapefile", "-lco", "ENCODING=ISO-8859-1"})
+	ds.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	out.Close()
+	os.Remove(filepath.Join(dir, "units.cpg"))
+	units, _, err := ReadUnits(shp, "id", g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(units) != 2 || units[0].ID != "Zoë" || units[1].ID != "Zoé" {
+		var ids []string
+		for _, u := range units {
+			ids = append(ids, u.ID)
+		}
+		t.Errorf("ids %q, want Zoë and Zoé", ids)
+	}
+}
