@@ -240,7 +240,7 @@ func metricsFigure(r *Results) figure {
 	panels, maxArea := metricPanels(r)
 	cols := min(3, max(1, len(panels)))
 	rows := max(1, (len(panels)+cols-1)/cols)
-	f := figure{Name: "metrics_vs_area", Title: "Each score against extent area", W: twoColumns}
+	f := figure{Name: metricsFigureName, Title: "Each score against extent area", W: twoColumns}
 	if cols == 1 {
 		f.W = oneColumn
 	}

@@ -125,7 +125,7 @@ func nullGapFigures(r *Results) []figure {
 	if !has {
 		return nil
 	}
-	f := figure{Name: "model_minus_null", Title: "Model minus null per extent",
+	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale). " +
 			"Vertical bars: 95% interval from the per-point placements. Bars wholly above 0: the model beats the null on that extent.",
 		W: twoColumns, H: 90 * vg.Millimeter}

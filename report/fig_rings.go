@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -568,9 +569,19 @@ func (l ringLayout) place(pi int, rest draw.Canvas) []ringPlaced {
 // ringPageName names page i (from 0) of the ring_steps figure.
 func ringPageName(i int) string {
 	if i == 0 {
-		return "ring_steps"
+		return ringFigureName
 	}
-	return fmt.Sprintf("ring_steps_%d", i+1)
+	return fmt.Sprintf("%s_%d", ringFigureName, i+1)
+}
+
+// ringPageNumber returns N for ring_steps_N, a further page of the
+// ring_steps figure (N >= 2, written as ringPageName writes it).
+func ringPageNumber(base string) (int, bool) {
+	n, err := strconv.Atoi(strings.TrimPrefix(base, ringFigureName+"_"))
+	if err != nil || n < 2 || ringPageName(n-1) != base {
+		return 0, false
+	}
+	return n, true
 }
 
 // ringsFigures draws the waterfall panels on as many pages as their rows

@@ -69,7 +69,7 @@ func rocFigure(r *Results) figure {
 	if len(es) > 0 {
 		amin, amax = es[0].AreaKm2, es[len(es)-1].AreaKm2
 	}
-	f := figure{Name: "roc_curves", Title: "ROC curves on the area axis", W: twoColumns}
+	f := figure{Name: rocFigureName, Title: "ROC curves on the area axis", W: twoColumns}
 	barW := 24 * vg.Millimeter
 	if cols == 1 {
 		f.W = oneColumn

@@ -37,6 +37,34 @@ type figure struct {
 // figureFormats are the files written per figure.
 var figureFormats = []string{"svg", "pdf", "png"}
 
+// Base names of the report's figures: figures/NAME.FORMAT for each of
+// figureFormats. The ring_steps figure's further pages are ring_steps_N
+// (ringPageName).
+const (
+	metricsFigureName = "metrics_vs_area"
+	rocFigureName     = "roc_curves"
+	mapFigureName     = "extent_maps"
+	nullFigureName    = "model_minus_null"
+	ringFigureName    = "ring_steps"
+)
+
+// IsFigureFile tells whether name, a file name in a report's figures/
+// folder, is one the report writes there: a figure, or a further page of
+// ring_steps, in one of the figure formats.
+func IsFigureFile(name string) bool {
+	dot := strings.LastIndexByte(name, '.')
+	if dot < 0 || !slices.Contains(figureFormats, name[dot+1:]) {
+		return false
+	}
+	switch base := name[:dot]; base {
+	case metricsFigureName, rocFigureName, mapFigureName, nullFigureName, ringFigureName:
+		return true
+	default:
+		_, ok := ringPageNumber(base)
+		return ok
+	}
+}
+
 // pngDPI is the resolution of the PNG files (common practice for print).
 const pngDPI = 300
 

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"strconv"
 	"strings"
 
 	"areasweep/report/outfile"
@@ -62,14 +61,13 @@ func removeStalePages(figDir string, figs []figure) error {
 		keep[f.Name] = true
 	}
 	for _, format := range figureFormats {
-		paths, err := filepath.Glob(filepath.Join(figDir, "ring_steps_*."+format))
+		paths, err := filepath.Glob(filepath.Join(figDir, ringFigureName+"_*."+format))
 		if err != nil {
 			return fmt.Errorf("report: %w", err)
 		}
 		for _, p := range paths {
 			name := strings.TrimSuffix(filepath.Base(p), "."+format)
-			n, err := strconv.Atoi(strings.TrimPrefix(name, "ring_steps_"))
-			if err != nil || n < 2 || ringPageName(n-1) != name || keep[name] {
+			if _, ours := ringPageNumber(name); !ours || keep[name] {
 				continue // not one of our pages, or a page of this report
 			}
 			if err := os.Remove(p); err != nil && !os.IsNotExist(err) {

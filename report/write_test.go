@@ -115,6 +115,33 @@ func TestWriteFiles(t *testing.T) {
 	}
 }
 
+// TestIsFigureFile checks IsFigureFile against the files a report writes
+// into figures/ (every one is recognised, so --force may replace them)
+// and against names it never writes (a user's own file there is kept).
+func TestIsFigureFile(t *testing.T) {
+	dir, _ := writeSample(t)
+	ents, err := os.ReadDir(filepath.Join(dir, "figures"))
+	if err != nil || len(ents) == 0 {
+		t.Fatalf("figures/ of the sample report: %d files, %v", len(ents), err)
+	}
+	for _, e := range ents {
+		if !IsFigureFile(e.Name()) {
+			t.Errorf("the report wrote figures/%s, which IsFigureFile does not recognise", e.Name())
+		}
+	}
+	for _, name := range []string{"ring_steps_2.svg", "ring_steps_12.pdf", "model_minus_null.png"} {
+		if !IsFigureFile(name) {
+			t.Errorf("IsFigureFile(%q) = false, want true", name)
+		}
+	}
+	for _, name := range []string{"my_figure.png", "roc_curves.jpg", "roc_curves", "ring_steps_1.svg",
+		"ring_steps_02.svg", "ring_steps_x.png", "ring_steps_.png", ".roc_curves.svg.tmp-123", "metrics_vs_area.svg.bak"} {
+		if IsFigureFile(name) {
+			t.Errorf("IsFigureFile(%q) = true, want false", name)
+		}
+	}
+}
+
 // TestWriteErrors covers the contract violations a caller can make.
 func TestWriteErrors(t *testing.T) {
 	r := loadSample(t)

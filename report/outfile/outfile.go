@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"syscall"
 )
 
@@ -22,10 +23,25 @@ func readUmask() os.FileMode {
 	return os.FileMode(m)
 }
 
+// tempInfix is what names Write's temporary file: "." + the file's name +
+// tempInfix + digits (os.CreateTemp's random part), beside the file.
+const tempInfix = ".tmp-"
+
+// IsTemp tells whether name is a temporary file Write creates, which a
+// process killed while writing can leave behind.
+func IsTemp(name string) bool {
+	i := strings.LastIndex(name, tempInfix)
+	if !strings.HasPrefix(name, ".") || i < 1 {
+		return false
+	}
+	digits := name[i+len(tempInfix):]
+	return digits != "" && strings.Trim(digits, "0123456789") == ""
+}
+
 // Write writes data to path atomically with mode perm &^ Umask (0o666 for
 // a data file, 0o777 for a script).
 func Write(path string, data []byte, perm os.FileMode) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+tempInfix+"*")
 	if err != nil {
 		return fmt.Errorf("write %s: %w", path, err)
 	}

@@ -46,3 +46,24 @@ func TestWrite(t *testing.T) {
 		t.Errorf("write into a missing folder: %v, want a not-exist cause", err)
 	}
 }
+
+// TestIsTemp: a temporary file named as Write names its own is
+// recognised (a killed write leaves one); ordinary names are not.
+func TestIsTemp(t *testing.T) {
+	dir := t.TempDir()
+	for range 5 {
+		f, err := os.CreateTemp(dir, ".roc_curves.svg"+tempInfix+"*")
+		if err != nil {
+			t.Fatal(err)
+		}
+		f.Close()
+		if name := filepath.Base(f.Name()); !IsTemp(name) {
+			t.Errorf("IsTemp(%q) = false for a temporary file named as Write names them", name)
+		}
+	}
+	for _, name := range []string{"roc_curves.svg", ".roc_curves.svg", "roc_curves.svg.tmp-12", ".a.tmp-", ".a.tmp-12x", ".tmp-12"} {
+		if IsTemp(name) {
+			t.Errorf("IsTemp(%q) = true, want false", name)
+		}
+	}
+}

@@ -14,7 +14,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"regexp"
 	"slices"
 	"sort"
 	"strconv"
@@ -23,6 +22,7 @@ import (
 	"syscall"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/report"
 	"areasweep/report/outfile"
 )
 
@@ -118,14 +118,10 @@ func OpenDemo(out string, force bool, inputFiles []string) (*Dir, error) {
 	return open(out, force, nil, true, inputFiles, false)
 }
 
-// figureName matches the files the report writes into figures/, and the
-// hidden temporary files of an atomic write (package outfile) that a
-// killed report can leave.
-var figureName = regexp.MustCompile(`^((metrics_vs_area|roc_curves|extent_maps|model_minus_null|ring_steps(_[0-9]+)?)\.(pdf|svg|png)|\..+\.tmp-[0-9]+)$`)
-
 // foreign lists, as paths under --out, what the folders among names hold
-// that areasweep does not write there: in figures/ a name figureName does
-// not match, in the demo's inputs/ a name not among its files, and any
+// that areasweep does not write there: in figures/ a name that is neither
+// a figure file (report.IsFigureFile) nor a temporary file a killed
+// report can leave (outfile.IsTemp), in the demo's inputs/ a name not among its files, and any
 // sub-folder, and a file where areasweep writes that folder. --force
 // replaces such a folder as a whole, so these would be deleted with it. staged, when not "", is the staging folder: an entry
 // the staged folder of the same name holds is areasweep's too.
@@ -146,7 +142,7 @@ func (d *Dir) foreign(names []string, staged string) []string {
 		for _, e := range entries {
 			ours := !e.IsDir()
 			if ours && n == "figures" {
-				ours = figureName.MatchString(e.Name())
+				ours = report.IsFigureFile(e.Name()) || outfile.IsTemp(e.Name())
 			} else if ours {
 				ours = slices.Contains(d.demoInputs, e.Name())
 			}
