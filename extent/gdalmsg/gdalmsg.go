@@ -86,6 +86,11 @@ func Drain() ([]Message, int) {
 // message: they mean nothing to a user.
 var libraryWords = regexp.MustCompile(`(?i)\b(ERROR|Warning) \d+:\s*|\bTIFF[A-Za-z0-9_]*(\(\))?:?\s*|\bsqlite3?_[A-Za-z0-9_]*(\([^)]*\))?:?\s*|\bsqlite\b:?\s*|\bGEOS[A-Za-z0-9_]*(\(\))?:?\s*|\bOGR_[A-Za-z0-9_]*:?\s*|\bGDAL[A-Za-z0-9_]*\(\):?\s*|\bproj_[A-Za-z0-9_]*:?\s*|\bPointer '[A-Za-z]+' is NULL in '[A-Za-z_]+'\.?\s*`)
 
+// shortRead is libtiff's message for a tile or strip whose bytes end
+// early: its row and column are the library's internal counters (often
+// 4294967295, an unsigned -1), so Cause keeps only the byte counts.
+var shortRead = regexp.MustCompile(`Read error at row \d+, col \d+, (tile|strip) (\d+); got (\d+) bytes, expected (\d+)`)
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -102,6 +107,7 @@ func Cause(text string) string {
 		}
 	}
 	line = libraryWords.ReplaceAllString(line, "")
+	line = shortRead.ReplaceAllString(line, "only $3 of the $4 bytes of $1 $2 are in the file")
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")
 	if line == "" {

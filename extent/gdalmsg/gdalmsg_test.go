@@ -13,7 +13,8 @@ import (
 // files).
 func TestCause(t *testing.T) {
 	for _, c := range []struct{ in, want string }{
-		{"ERROR 1: TIFFFillTile:Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024", "Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024"},
+		{"ERROR 1: TIFFFillTile:Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024", "only 0 of the 1024 bytes of tile 3 are in the file"},
+		{"TIFFReadEncodedStrip() failed: Read error at row 64, col 0, strip 17; got 1520 bytes, expected 6164", "failed: only 1520 of the 6164 bytes of strip 17 are in the file"},
 		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "failed: database disk image is malformed"},
 		{"Self-intersection at or near point 1 1\nsecond line", "Self-intersection at or near point 1 1"},
 		{"ERROR 10: Pointer 'hGeom' is NULL in 'OGR_G_GetGeometryType'.", "the library reported an error"},
