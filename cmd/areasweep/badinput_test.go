@@ -183,7 +183,7 @@ func TestBadInputs(t *testing.T) {
 			} else if args[0] == "run" || args[0] == "extents" || args[0] == "demo" {
 				args = append(args, "--out", out)
 			}
-			if args[0] != "report" && !contains(args, "--quiet") {
+			if args[0] != "report" && args[0] != "completion" && !contains(args, "--quiet") {
 				args = append(args, "--quiet")
 			}
 			before := treeSums(t, f.dir)
@@ -493,6 +493,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
 		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
 		{"unknown command", []string{"bogus"}, 2, []string{`unknown command "bogus"`, "areasweep --help"}, "", ""},
+		{"completion for an unknown shell", []string{"completion", "tcsh"}, 2, []string{`unknown command "tcsh"`, "areasweep completion --help"}, "", ""},
 		{"merge given nothing", []string{"merge", "--out", filepath.Join(f.outs, "merged")}, 2, []string{"no partial file given"}, "", filepath.Join(f.outs, "merged")},
 		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
 		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},

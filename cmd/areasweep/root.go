@@ -191,6 +191,14 @@ reports how much of each score comes from the extent rather than from the model.
 		newDemoCmd(streams, nil),
 		newVersionCmd(streams),
 	)
+	// cobra's completion command, having no Run, prints its help and exits
+	// 0 for a shell it has no script for. Runnable, it has its arguments
+	// checked like any command: an unknown shell is an unknown command,
+	// bad input (wrapArgs).
+	root.InitDefaultCompletionCmd()
+	if c, _, err := root.Find([]string{"completion"}); err == nil && c != root {
+		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
+	}
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)
 	}
