@@ -1,0 +1,700 @@
+#!/usr/bin/python3
+"""Golden values for an end-to-end check of `areasweep run` on unusual grids.
+
+Writes golden.json beside this script. It holds, for each study, the inputs
+in a form the Go test (cmd/areasweep/golden_e2e_test.go) turns into files
+(grid, integer formulas for the model rasters, occurrence records, region
+polygons, settings), and the values areasweep must report, computed here
+from the documented rules WITHOUT areasweep:
+
+  studies   utm      EPSG:32633 (UTM 33N, not equal-area), Int16 model with
+                     scale and offset and a nodata value, plus a Float32 model;
+                     region given in longitude/latitude (CRS84);
+            laea     EPSG:3035 (equal-area), Float32 model with NaN as no data,
+                     region with a hole given in EPSG:3035, one grown and one
+                     shrunk region buffer;
+            dateline latitude-longitude grid running 170..190 degrees east,
+                     region as two polygons split at 180, points written on
+                     both sides of the antimeridian (-180..180);
+            arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
+                     Float32 model and a Byte model with heavy ties (floor 0,
+                     nodata 255), region with a hole.
+
+  membership  cell centres rasterized with GDAL (gdal.RasterizeLayer, whose
+              default burns the cells whose centre is inside: the documented
+              cell-centre rule), polygons reprojected to the grid CRS vertex
+              by vertex with OGR; the hull by pyproj's gnomonic projection on
+              the unit sphere about the training points' mean direction
+              (great circles become straight lines) and a point-in-polygon
+              test; region buffers from pyproj Geod(ellps="WGS84").inv
+              (Karney 2013) from each cell centre to the boundary (edges
+              straight in the grid CRS, densified every 50 m). areasweep
+              densifies the boundary every cell side (README), which can
+              overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
+              cells inside the buffer by less than that are "ambiguous",
+              listed and not asserted.
+  cell areas  latitude-longitude cells: the exact WGS84 area of the
+              quadrangle (authalic latitude, Snyder 1987 USGS PP 1395
+              eqs. 3-11 to 3-13), cross-checked here against pyproj
+              Geod.polygon_area_perimeter of the cell outline densified
+              along its parallels (the script stops if they differ by more
+              than 1e-8 relative); projected cells: Geod.polygon_area_perimeter
+              of the cell outline densified 16 points per side and
+              transformed to WGS84 with pyproj.
+  points      cell of each record (floor of the pixel coordinates; projected
+              grids: pyproj transform), status (outside, nodata, thinned:
+              first record per cell and role kept).
+  scores      area-weighted AUC, unweighted AUC and training AUC from
+              sklearn.metrics.roc_auc_score (sample_weight: cells by area,
+              presences by 1); auc_se from the placements (numpy);
+              thresholds (minimum and 10th-percentile training presence,
+              fixed) with scipy.stats.binomtest(k, n, p,
+              alternative="greater"); the full-sample partial ROC ratio
+              (Peterson, Papes & Soberon 2008) from the curve on the area
+              axis written out in numpy (see partial_roc); the continuous
+              Boyce index (Hirzel et al. 2006) with exact window areas from
+              the cells and scipy.stats.spearmanr, and for each of the 100
+              windows the bounds that areasweep's histogram reading of the
+              window's area must respect (see boyce).
+
+Deterministic: fixed seeds, no clock, sorted keys. Run with /usr/bin/python3
+(Debian's python3-gdal, python3-numpy, python3-sklearn, python3-scipy,
+python3-pyproj).
+"""
+import json
+import math
+import os
+import re
+import sys
+
+import numpy as np
+from osgeo import gdal, ogr, osr
+from pyproj import Geod, Transformer
+from scipy.stats import binomtest, spearmanr
+from sklearn.metrics import roc_auc_score
+
+gdal.UseExceptions()
+HERE = os.path.dirname(os.path.abspath(__file__))
+GEOD = Geod(ellps="WGS84")
+
+# ---------------------------------------------------------------- the studies
+
+
+def bump(name, typ, r0, c0, a, b, k, amp, floor, noise, **kw):
+    """A model raster given by integer arithmetic that Go repeats exactly:
+
+        d = a (r - r0)^2 + b (c - c0)^2
+        v = max(amp - d // k, floor) + ((131 r + 71 c + (r c mod 97)) mod noise)
+
+    stored as v (integer types) or v / div (Float32, div a power of two);
+    the value is stored * scale + offset when scale is given. Cells in
+    nodata_box [r0, r1) x [c0, c1) are stored as nodata (NaN for Float32
+    without a nodata value)."""
+    m = dict(name=name, type=typ, r0=r0, c0=c0, a=a, b=b, k=k, amp=amp, floor=floor, noise=noise)
+    m.update(kw)
+    return m
+
+
+STUDIES = [
+    dict(
+        name="utm", crs="EPSG:32633", width=160, height=120,
+        gt=[500000.0, 1000.0, 0.0, 5400000.0, 0.0, -1000.0],
+        models=[
+            bump("int16", "Int16", 60, 80, 3, 2, 1, 900, 50, 40, scale=0.001, offset=0.25, nodata=-32768,
+                 nodata_box=[0, 14, 140, 160]),
+            bump("f32", "Float32", 50, 95, 1, 1, 4, 2600, 0, 200, div=4096, nodata=-9999.0,
+                 nodata_box=[100, 120, 0, 10]),
+        ],
+        region=dict(crs="CRS84", features=[[[[14.5531, 48.0517], [16.5523, 48.1019], [16.7041, 48.9032], [15.6113, 48.5487],
+                                              [14.6027, 48.8521], [14.5531, 48.0517]]]]),
+        region_buffers=[], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
+    ),
+    dict(
+        name="laea", crs="EPSG:3035", width=150, height=110,
+        gt=[4300000.0, 2000.0, 0.0, 3000000.0, 0.0, -2000.0],
+        models=[
+            bump("f32", "Float32", 55, 70, 2, 1, 3, 3000, 100, 300, div=1024, nodata_box=[0, 12, 0, 16]),
+        ],
+        region=dict(crs="EPSG:3035", features=[[
+            [[4340317, 2820211], [4540129, 2810433], [4560271, 2960187], [4420383, 2990119], [4330241, 2930367],
+             [4340317, 2820211]],
+            [[4420173, 2870329], [4470231, 2880117], [4450387, 2920263], [4420173, 2870329]],
+        ]]),
+        region_buffers=[-6, 10], e=[0.05, 0.2], thresholds=[1.5], train=20, test=35,
+    ),
+    dict(
+        name="dateline", crs="EPSG:4326", width=200, height=100,
+        gt=[170.0, 0.1, 0.0, -10.0, 0.0, -0.1],
+        models=[
+            bump("f32", "Float32", 50, 100, 1, 1, 2, 5000, 0, 100, div=8192, nodata=-1.0,
+                 nodata_box=[90, 100, 190, 200]),
+        ],
+        region=dict(crs="CRS84", features=[
+            [[[174.513, -12.017], [180.0, -12.017], [180.0, -17.523], [175.031, -18.029], [174.513, -12.017]]],
+            [[[-180.0, -12.017], [-175.523, -12.531], [-176.037, -17.011], [-180.0, -17.523], [-180.0, -12.017]]],
+        ]),
+        region_buffers=[], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
+    ),
+    dict(
+        name="arctic", crs="EPSG:4326", width=300, height=200,
+        gt=[0.0, 0.1, 0.0, 80.0, 0.0, -0.1],
+        models=[
+            bump("f32", "Float32", 110, 140, 1, 1, 6, 4000, 0, 150, div=2048, nodata=-9999.0,
+                 nodata_box=[0, 20, 0, 30]),
+            bump("byte", "Byte", 110, 140, 1, 1, 1500, 6, 0, 1, nodata=255, nodata_box=[190, 200, 290, 300]),
+        ],
+        region=dict(crs="CRS84", features=[[
+            [[5.013, 62.017], [26.021, 61.513], [27.029, 74.011], [15.037, 78.023], [4.019, 73.031], [5.013, 62.017]],
+            [[12.011, 67.013], [18.027, 67.013], [18.027, 70.519], [12.011, 70.519], [12.011, 67.013]],
+        ]]),
+        region_buffers=[], e=[0.05, 0.1, 0.3], thresholds=[1.0, 3.0], train=24, test=40,
+    ),
+]
+ITERATIONS, SEED = 10, 11
+
+# ---------------------------------------------------------------- inputs
+
+
+def model_values(spec, m):
+    """Float64 values of model m (NaN = no data), row-major, as areasweep
+    reads them (stored * scale + offset)."""
+    h, w = spec["height"], spec["width"]
+    r, c = np.mgrid[0:h, 0:w].astype(np.int64)
+    d = m["a"] * (r - m["r0"]) ** 2 + m["b"] * (c - m["c0"]) ** 2
+    v = np.maximum(m["amp"] - d // m["k"], m["floor"]) + (131 * r + 71 * c + (r * c) % 97) % m["noise"]
+    if m["type"] == "Float32":
+        val = (v.astype(np.float64) / m["div"]).astype(np.float32).astype(np.float64)
+    else:
+        val = v.astype(np.float64)
+        if "scale" in m:
+            val = val * m["scale"] + m["offset"]
+    b = m["nodata_box"]
+    val[b[0]:b[1], b[2]:b[3]] = np.nan
+    if m["type"] != "Float32":
+        assert v.max() < (255 if m["type"] == "Byte" else 32767) and v.min() >= 0
+    return val.ravel()
+
+
+def gen_points(spec, first_valid):
+    """Records in cell coordinates turned to WGS84 longitude/latitude
+    (rounded to 6 decimals), written in -180..180: training points near the
+    first model's peak, test points half near it, half anywhere; then a
+    repeated training and test record (thinned), one test point on the
+    first model's no-data box and one outside the raster."""
+    rng = np.random.default_rng(sum(map(ord, spec["name"])) * 7919)
+    m = spec["models"][0]
+    recs = []
+    for i in range(spec["train"]):
+        recs.append(("train", m["c0"] + 0.5 + rng.normal(0, spec["width"] / 8), m["r0"] + 0.5 + rng.normal(0, spec["height"] / 8)))
+    for i in range(spec["test"]):
+        if i % 2 == 0:
+            recs.append(("test", m["c0"] + 0.5 + rng.normal(0, spec["width"] / 6), m["r0"] + 0.5 + rng.normal(0, spec["height"] / 6)))
+        else:
+            recs.append(("test", rng.uniform(0.5, spec["width"] - 0.5), rng.uniform(0.5, spec["height"] - 0.5)))
+    recs = [(role, min(max(c, 0.3), spec["width"] - 0.3), min(max(r, 0.3), spec["height"] - 0.3)) for role, c, r in recs]
+    recs.append(recs[0])
+    recs.append(recs[spec["train"] + 1])
+    b = m["nodata_box"]
+    recs.append(("test", (b[2] + b[3]) / 2 + 0.1, (b[0] + b[1]) / 2 + 0.1))
+    recs.append(("test", -3.5, spec["height"] / 2))
+    gt = spec["gt"]
+    xs = np.array([gt[0] + c * gt[1] for _, c, _ in recs])
+    ys = np.array([gt[3] + r * gt[5] for _, _, r in recs])
+    lon, lat = to_lonlat(spec, xs, ys)
+    out = []
+    for (role, _, _), lo, la in zip(recs, lon, lat):
+        lo = (lo + 180) % 360 - 180
+        out.append({"role": role, "lon": round(float(lo), 6), "lat": round(float(la), 6)})
+    return out
+
+
+def to_lonlat(spec, xs, ys):
+    if spec["crs"] == "EPSG:4326":
+        return np.asarray(xs, float), np.asarray(ys, float)
+    t = Transformer.from_crs(spec["crs"], "EPSG:4326", always_xy=True)
+    return t.transform(xs, ys)
+
+
+def from_lonlat(spec, lon, lat):
+    if spec["crs"] == "EPSG:4326":
+        west = spec["gt"][0]
+        lon = np.asarray(lon, float)
+        return west + np.mod(lon - west, 360.0), np.asarray(lat, float)
+    t = Transformer.from_crs("EPSG:4326", spec["crs"], always_xy=True)
+    return t.transform(lon, lat)
+
+
+# ---------------------------------------------------------------- geometry
+
+
+def authalic_area_m2(lat1, lat2, dlon_deg):
+    a, f = 6378137.0, 1 / 298.257223563
+    e2 = f * (2 - f)
+    e = math.sqrt(e2)
+
+    def q(phi):
+        s = math.sin(phi)
+        return (1 - e2) * (s / (1 - e2 * s * s) - 1 / (2 * e) * math.log((1 - e * s) / (1 + e * s)))
+
+    return a * a / 2 * math.radians(dlon_deg) * (q(math.radians(lat2)) - q(math.radians(lat1)))
+
+
+def cell_areas_km2(spec):
+    h, w, gt = spec["height"], spec["width"], spec["gt"]
+    out = np.zeros((h, w))
+    if spec["crs"] == "EPSG:4326":
+        for r in range(h):
+            top = gt[3] + r * gt[5]
+            a = authalic_area_m2(top + gt[5], top, gt[1])
+            # Cross-check: the outline with its parallels densified.
+            n = 256
+            lons = np.r_[np.linspace(0, gt[1], n), np.linspace(gt[1], 0, n)]
+            lats = np.r_[np.full(n, top + gt[5]), np.full(n, top)]
+            g, _ = GEOD.polygon_area_perimeter(lons, lats)
+            if abs(abs(g) - a) > 1e-8 * a:
+                sys.exit(f"{spec['name']}: row {r}: authalic area {a} vs Geod {abs(g)}")
+            out[r, :] = a / 1e6
+        return out
+    t = Transformer.from_crs(spec["crs"], "EPSG:4326", always_xy=True)
+    k = 16
+    f = np.arange(k) / k
+    for r in range(h):
+        y0, y1 = gt[3] + r * gt[5], gt[3] + (r + 1) * gt[5]
+        for c in range(w):
+            x0, x1 = gt[0] + c * gt[1], gt[0] + (c + 1) * gt[1]
+            xs = np.r_[x0 + f * (x1 - x0), np.full(k, x1), x1 - f * (x1 - x0), np.full(k, x0)]
+            ys = np.r_[np.full(k, y1), y1 + f * (y0 - y1), np.full(k, y0), y0 - f * (y0 - y1)]
+            lon, lat = t.transform(xs, ys)
+            a, _ = GEOD.polygon_area_perimeter(lon, lat)
+            out[r, c] = abs(a) / 1e6
+    return out
+
+
+def region_geoms(spec):
+    """The region's polygons as OGR geometries in the grid CRS; on
+    latitude-longitude grids each polygon moved by whole turns into the
+    grid's longitude range (README: Antimeridian)."""
+    src = osr.SpatialReference()
+    if spec["region"]["crs"] == "CRS84":
+        src.ImportFromEPSG(4326)
+    else:
+        src.ImportFromEPSG(int(spec["region"]["crs"].split(":")[1]))
+    src.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    dst = osr.SpatialReference()
+    dst.ImportFromEPSG(int(spec["crs"].split(":")[1]))
+    dst.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    ct = osr.CoordinateTransformation(src, dst)
+    west = spec["gt"][0]
+    east = west + spec["width"] * spec["gt"][1]
+    geoms = []
+    for poly in spec["region"]["features"]:
+        rings = [np.array(r, float) for r in poly]
+        if spec["crs"] == "EPSG:4326":
+            lo, hi = rings[0][:, 0].min(), rings[0][:, 0].max()
+            k = math.floor((west - hi) / 360)
+            while not (hi + 360 * k > west and lo + 360 * k < east):
+                k += 1
+            rings = [r + [360 * k, 0] for r in rings]
+        g = ogr.Geometry(ogr.wkbPolygon)
+        for r in rings:
+            ring = ogr.Geometry(ogr.wkbLinearRing)
+            for x, y in r:
+                ring.AddPoint_2D(float(x), float(y))
+            g.AddGeometry(ring)
+        if spec["crs"] != "EPSG:4326" and spec["region"]["crs"] != spec["crs"]:
+            g.Transform(ct)
+        geoms.append(g)
+    return geoms
+
+
+def rasterize(spec, geoms):
+    h, w = spec["height"], spec["width"]
+    ds = gdal.GetDriverByName("MEM").Create("", w, h, 1, gdal.GDT_Byte)
+    ds.SetGeoTransform(spec["gt"])
+    drv = ogr.GetDriverByName("Memory")
+    vds = drv.CreateDataSource("m")
+    srs = osr.SpatialReference()
+    srs.ImportFromEPSG(int(spec["crs"].split(":")[1]))
+    ds.SetProjection(srs.ExportToWkt())
+    lyr = vds.CreateLayer("r", srs=srs, geom_type=ogr.wkbPolygon)
+    for g in geoms:
+        f = ogr.Feature(lyr.GetLayerDefn())
+        f.SetGeometry(g)
+        lyr.CreateFeature(f)
+    gdal.RasterizeLayer(ds, [1], lyr, burn_values=[1])
+    return ds.GetRasterBand(1).ReadAsArray().astype(bool).ravel()
+
+
+def centres(spec):
+    h, w, gt = spec["height"], spec["width"], spec["gt"]
+    r, c = np.mgrid[0:h, 0:w]
+    xs = gt[0] + (c.ravel() + 0.5) * gt[1]
+    ys = gt[3] + (r.ravel() + 0.5) * gt[5]
+    return xs, ys
+
+
+def boundary_distance_m(spec, geoms, cand):
+    """Geodesic distance (m) from the centres of cells cand to the region's
+    boundary, its edges straight in the grid CRS and densified every 50 m."""
+    pts = []
+    for g in geoms:
+        for i in range(g.GetGeometryCount()):
+            ring = np.array(g.GetGeometryRef(i).GetPoints())[:, :2]
+            for a, b in zip(ring[:-1], ring[1:]):
+                n = max(1, int(math.ceil(math.hypot(*(b - a)) / 50.0)))
+                f = np.arange(n)[:, None] / n
+                pts.append(a + f * (b - a))
+    pts = np.vstack(pts)
+    blon, blat = to_lonlat(spec, pts[:, 0], pts[:, 1])
+    xs, ys = centres(spec)
+    clon, clat = to_lonlat(spec, xs[cand], ys[cand])
+    out = np.empty(len(cand))
+    for i, k in enumerate(cand):
+        # Only the boundary points whose planar distance is within 10% (plus
+        # 2 km) of the nearest one's can be the geodesically nearest.
+        pd = np.hypot(pts[:, 0] - xs[k], pts[:, 1] - ys[k])
+        sel = pd <= pd.min() * 1.1 + 2000.0
+        _, _, d = GEOD.inv(np.full(sel.sum(), clon[i]), np.full(sel.sum(), clat[i]), blon[sel], blat[sel])
+        out[i] = d.min()
+    return out
+
+
+def planar_boundary_distance(geoms, xs, ys):
+    """Planar distance from each point to the polygons' boundary (grid CRS),
+    used only to pick the cells near a buffer's edge."""
+    best = np.full(len(xs), np.inf)
+    for g in geoms:
+        for i in range(g.GetGeometryCount()):
+            ring = np.array(g.GetGeometryRef(i).GetPoints())[:, :2]
+            for a, b in zip(ring[:-1], ring[1:]):
+                ab = b - a
+                t = np.clip(((xs - a[0]) * ab[0] + (ys - a[1]) * ab[1]) / (ab @ ab), 0, 1)
+                best = np.minimum(best, np.hypot(xs - a[0] - t * ab[0], ys - a[1] - t * ab[1]))
+    return best
+
+
+def hull_mask(spec, train_lon, train_lat):
+    """Cells whose centre is inside the training points' convex hull on the
+    unit sphere (latitude taken as spherical latitude): pyproj's gnomonic
+    projection about the points' mean direction, planar hull (monotone
+    chain), point-in-polygon."""
+    lo, la = np.radians(train_lon), np.radians(train_lat)
+    v = np.c_[np.cos(la) * np.cos(lo), np.cos(la) * np.sin(lo), np.sin(la)].sum(axis=0)
+    clat = math.degrees(math.atan2(v[2], math.hypot(v[0], v[1])))
+    clon = math.degrees(math.atan2(v[1], v[0]))
+    t = Transformer.from_crs("+proj=longlat +R=1 +no_defs", f"+proj=gnom +lat_0={clat!r} +lon_0={clon!r} +R=1 +no_defs", always_xy=True)
+    px, py = t.transform(train_lon, train_lat)
+    P = sorted(set(zip(px, py)))
+
+    def cr(o, a, b):
+        return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+
+    lower, upper = [], []
+    for p in P:
+        while len(lower) >= 2 and cr(lower[-2], lower[-1], p) <= 0:
+            lower.pop()
+        lower.append(p)
+    for p in reversed(P):
+        while len(upper) >= 2 and cr(upper[-2], upper[-1], p) <= 0:
+            upper.pop()
+        upper.append(p)
+    hull = np.array(lower[:-1] + upper[:-1])
+    xs, ys = centres(spec)
+    clon_, clat_ = to_lonlat(spec, xs, ys)
+    qx, qy = t.transform(clon_, clat_)
+    # Angular distance from the centre: the far hemisphere is outside.
+    inside = np.ones(len(xs), bool)
+    for a, b in zip(hull, np.roll(hull, -1, axis=0)):
+        inside &= (b[0] - a[0]) * (qy - a[1]) - (b[1] - a[1]) * (qx - a[0]) >= 0
+    return inside, hull
+
+
+# ---------------------------------------------------------------- metrics
+
+
+def placements(bg, w, pres):
+    tot = w.sum()
+    order = np.argsort(bg, kind="stable")
+    sv, cw = bg[order], np.r_[0, np.cumsum(w[order])]
+    lo = np.searchsorted(sv, pres, "left")
+    hi = np.searchsorted(sv, pres, "right")
+    return (cw[lo] + (cw[hi] - cw[lo]) / 2) / tot
+
+
+def auc(bg, w, pres):
+    y = np.r_[np.zeros(len(bg)), np.ones(len(pres))]
+    return float(roc_auc_score(y, np.r_[bg, pres], sample_weight=np.r_[w, np.ones(len(pres))]))
+
+
+def partial_roc(bg, w, pres, e):
+    """Full-sample partial ROC ratio (Peterson, Papes & Soberon 2008) on the
+    area axis: x(t) = share of area with value >= t, y(t) = share of test
+    presences with value >= t. Vertices at each distinct test value u,
+    descending: (x(>u), y(>u)) then (x(>=u), y(>=u)); the curve starts at
+    (0,0) and ends at (1,1). x_E is where y first reaches 1-E (linear along
+    the crossing segment); ratio = integral_{x_E}^1 y dx / ((1 - x_E^2)/2).
+    Undefined when x_E = 1, or when the crossing lies strictly inside the
+    segment of a value held by 2 or more test presences (then the discrete
+    reading x_E = x(>= u) is given)."""
+    n = len(pres)
+    tot = w.sum()
+    us, cnt = np.unique(pres, return_counts=True)
+    us, cnt = us[::-1], cnt[::-1]
+    tau = (1 - e) * n
+    if abs(tau - round(tau)) <= 1e-9 * max(1, tau):
+        tau = float(round(tau))
+    xs, ys = [0.0], [0.0]
+    ya = 0
+    cross = None
+    for u, c in zip(us, cnt):
+        xa, xb = w[bg > u].sum() / tot, w[bg >= u].sum() / tot
+        xs += [xa, xb]
+        ys += [ya, ya + c]
+        if cross is None and ya + c >= tau:
+            s = (tau - ya) / c
+            xe = xb if s >= 1 else xa + s * (xb - xa)
+            cross = dict(xe=xe, tie=bool(c >= 2 and 0 < s < 1), xb=xb)
+        ya += c
+    xs.append(1.0)
+    ys.append(float(n))
+    xs, ys = np.array(xs), np.array(ys) / n
+
+    out = {"e": e, "x_e": cross["xe"], "tie": cross["tie"]}
+    if cross["xe"] >= 1 or cross["tie"]:
+        out["defined"] = False
+        if cross["tie"] and cross["xb"] < 1:
+            out["discrete_x_e"] = cross["xb"]
+            out["discrete_ratio"] = ratio_polyline(xs, ys, cross["xb"])
+    else:
+        out["defined"] = True
+        out["ratio"] = ratio_polyline(xs, ys, cross["xe"])
+    return out
+
+
+def ratio_polyline(xs, ys, xe):
+    """integral_{xe}^1 y dx over the polyline, over (1 - xe^2)/2. The
+    polyline is monotone in x; where several vertices share x = xe (a
+    vertical step), the integral starts after the last of them."""
+    total = 0.0
+    for x0, y0, x1, y1 in zip(xs[:-1], ys[:-1], xs[1:], ys[1:]):
+        if x1 <= xe or x1 == x0:
+            continue
+        a0 = max(x0, xe)
+        ya0 = y0 + (y1 - y0) * (a0 - x0) / (x1 - x0)
+        total += (x1 - a0) * (ya0 + y1) / 2
+    return total / ((1 - xe * xe) / 2)
+
+
+def thresholds(bg, w, test, train_all, fixed):
+    out = []
+    tot = w.sum()
+    n = len(test)
+
+    def add(name, t):
+        succ = int(np.sum(test >= t))
+        p = float(w[bg >= t].sum() / tot)
+        pb = float(binomtest(succ, n, p, alternative="greater").pvalue) if succ > 0 else 1.0
+        out.append({"name": name, "value": float(t), "successes": succ, "n": n, "omission": (n - succ) / n,
+                    "area_fraction": p, "p_binomial": pb})
+
+    tr = np.sort(train_all)
+    add("minimum_training_presence", tr[0])
+    add("p10_training_presence", tr[len(tr) // 10])
+    for t in fixed:
+        add("fixed", t)
+    return out
+
+
+def boyce(bg, w, test, width=0.1, steps=100):
+    """Continuous Boyce index (Hirzel et al. 2006) with exact window areas:
+    windows of width 0.1 (max - min) in 100 equal steps, both ends
+    inclusive, the last one ending at max; P = share of test presences and
+    E = share of area in the window; F = P/E over the windows with area;
+    the index is the Spearman correlation (average ranks, scipy) of F with
+    the window midpoints.
+
+    areasweep reads E from a histogram of bins of width delta <= (max -
+    min)/2047 (README: at least 2,048 bins across the range), each bin's
+    area spread over the bin. Whatever the bins' positions, that E lies
+    between the exact area of [lo + delta, hi - delta] (every bin holding
+    such a value lies wholly inside the window) and that of [lo - delta,
+    hi + delta] (no bin reaching into the window holds a value farther
+    out): e_lo and e_hi below, with delta = (max - min)/2047."""
+    mn, mx = bg.min(), bg.max()
+    span = mx - mn
+    wd = width * span
+    step = (span - wd) / (steps - 1)
+    delta = span / 2047
+    tot = w.sum()
+
+    def share(lo, hi):
+        return float(w[(bg >= lo) & (bg <= hi)].sum() / tot)
+
+    windows, mids, fs = [], [], []
+    for i in range(steps):
+        lo = mn + i * step
+        hi = mx if i == steps - 1 else lo + wd
+        e = share(lo, hi)
+        p = float(np.sum((test >= lo) & (test <= hi)) / len(test))
+        windows.append((lo + wd / 2, p, share(lo + delta, hi - delta), share(lo - delta, hi + delta)))
+        if e > 1e-12:
+            mids.append(lo + wd / 2)
+            fs.append(p / e)
+    # One list per quantity, in window order.
+    out = {k: [float(x[i]) for x in windows] for i, k in enumerate(["mid", "p", "e_lo", "e_hi"])}
+    out["defined"] = len(fs) >= 3 and len(set(fs)) >= 2
+    if out["defined"]:
+        out["index"] = float(spearmanr(fs, mids).statistic)
+    return out
+
+
+# ---------------------------------------------------------------- one study
+
+
+def study(spec):
+    h, w = spec["height"], spec["width"]
+    gt = spec["gt"]
+    vals = [model_values(spec, m) for m in spec["models"]]
+    valid = ~np.isnan(vals[0])
+    area = cell_areas_km2(spec).ravel()
+    spec["points"] = gen_points(spec, valid)
+
+    # Points: cell, status, thinning.
+    lon = np.array([p["lon"] for p in spec["points"]])
+    lat = np.array([p["lat"] for p in spec["points"]])
+    px, py = from_lonlat(spec, lon, lat)
+    points = []
+    seen = {}
+    for i, (p, x, y) in enumerate(zip(spec["points"], px, py)):
+        fc, fr = (x - gt[0]) / gt[1], (y - gt[3]) / gt[5]
+        rec = {"id": i + 2, "role": p["role"]}
+        if not (0 <= fc < w and 0 <= fr < h):
+            rec.update(status="outside_raster", row=-1, col=-1)
+        else:
+            c, r = int(fc), int(fr)
+            rec.update(row=r, col=c)
+            cell = r * w + c
+            if not valid[cell]:
+                rec["status"] = "nodata"
+            elif (cell, p["role"]) in seen:
+                rec["status"] = "thinned"
+            else:
+                seen[(cell, p["role"])] = i
+                rec["status"] = "scored"
+                rec["cell"] = cell
+        points.append(rec)
+    scored = [p for p in points if p["status"] == "scored"]
+    train_cells = [p["cell"] for p in scored if p["role"] == "train"]
+    test_cells = [p["cell"] for p in scored if p["role"] == "test"]
+
+    # Extents.
+    xs, ys = centres(spec)
+    geoms = region_geoms(spec)
+    # No cell centre may lie on a region edge (where GDAL's rasterizer and
+    # the documented half-open rule may legitimately differ).
+    if planar_boundary_distance(geoms, xs, ys).min() < 1e-6 * gt[1]:
+        sys.exit(f"{spec['name']}: a cell centre lies on a region edge; move the vertices")
+    base = rasterize(spec, geoms) & valid
+    extents = [("base", base, [])]
+    if spec["region_buffers"]:
+        inside = rasterize(spec, geoms)
+        pd = planar_boundary_distance(geoms, xs, ys)
+        diag = math.hypot(gt[1], gt[5])
+        for d in sorted(spec["region_buffers"]):
+            dm = abs(d) * 1000.0
+            near = np.nonzero((pd > dm * 0.9 - 2 * diag) & (pd < dm * 1.1 + 2 * diag))[0]
+            within = pd <= dm  # far from the edge, planar and geodesic agree on the side
+            gd = boundary_distance_m(spec, geoms, near)
+            within[near] = gd <= dm
+            # README: the boundary is densified every cell side, so a
+            # distance is overestimated by at most sqrt(g^2 + (s/2)^2) - g:
+            # only cells just inside the buffer's edge can be missed.
+            half = max(abs(gt[1]), abs(gt[5])) / 2
+            amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3)]
+            if d > 0:
+                mask = (inside | within) & valid
+                eid = f"region_{d:g}km"
+            else:
+                mask = inside & ~within & valid
+                eid = f"region_minus{-d:g}km"
+            extents.append((eid, mask, sorted(int(a) for a in amb)))
+    tlon = lon[[p["id"] - 2 for p in scored if p["role"] == "train"]]
+    tlat = lat[[p["id"] - 2 for p in scored if p["role"] == "train"]]
+    hm, _ = hull_mask(spec, tlon, tlat)
+    extents.append(("hull", hm & valid, []))
+    extents.append(("whole_raster", valid.copy(), []))
+    ext_out = []
+    status = {}
+    for i, (eid, mask, amb) in enumerate(extents):
+        st = "empty" if not mask.any() else "ok"
+        for e2, m2, _ in extents[:i]:
+            if st == "ok" and status[e2] == "ok" and np.array_equal(mask, m2):
+                st = "duplicate"
+        status[eid] = st
+        ext_out.append({
+            "id": eid, "status": st, "cells": int(mask.sum()), "area_km2": float(area[mask].sum()),
+            "train_points": int(sum(mask[c] for c in train_cells)),
+            "test_points": int(sum(mask[c] for c in test_cells)),
+            "ambiguous_cells": amb,
+            "rows": runs(mask.reshape(h, w)),
+        })
+
+    scores = []
+    for m, v in zip(spec["models"], vals):
+        train_all = np.array([v[c] for c in train_cells if not np.isnan(v[c])])
+        for eid, mask, amb in extents:
+            cells = mask & ~np.isnan(v)
+            bg, wt = v[cells], area[cells]
+            te = np.array([v[c] for c in test_cells if cells[c]])
+            tr = np.array([v[c] for c in train_cells if cells[c]])
+            s = {"model": m["name"], "extent": eid, "cells": int(cells.sum()), "area_km2": float(wt.sum()),
+                 "test_points": len(te), "train_points": len(tr)}
+            if status[eid] != "ok" or len(te) == 0 or bg.min() == bg.max():
+                s["scored"] = False
+                scores.append(s)
+                continue
+            s["scored"] = True
+            s["auc"] = auc(bg, wt, te)
+            s["auc_unweighted"] = auc(bg, np.ones(len(bg)), te)
+            s["auc_train"] = auc(bg, wt, tr) if len(tr) else 0.0
+            pl = placements(bg, wt, te)
+            n = len(pl)
+            s["auc_placements_mean"] = float(pl.mean())
+            s["auc_se"] = float(math.sqrt(np.sum((pl - pl.mean()) ** 2) / (n * (n - 1)))) if n >= 2 else 0.0
+            s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
+            s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
+            s["boyce"] = boyce(bg, wt, te)
+            scores.append(s)
+    return {"points": points, "extents": ext_out, "scores": scores}
+
+
+def runs(mask2d):
+    """Per row, the membership as half-open column runs [c0, c1)."""
+    out = []
+    for row in mask2d:
+        d = np.diff(np.r_[0, row.astype(np.int8), 0])
+        st, en = np.nonzero(d == 1)[0], np.nonzero(d == -1)[0]
+        out.append([int(x) for pair in zip(st, en) for x in pair])
+    return out
+
+
+def main():
+    out = {"source": "GDAL RasterizeLayer (cell centres); pyproj Geod(ellps='WGS84') inv and polygon_area_perimeter, "
+                     "Transformer, gnomonic projection; sklearn.metrics.roc_auc_score(sample_weight); "
+                     "scipy.stats.binomtest, spearmanr; numpy",
+           "iterations": ITERATIONS, "seed": SEED, "studies": []}
+    for spec in STUDIES:
+        exp = study(spec)
+        out["studies"].append({"spec": spec, "expected": exp})
+    path = sys.argv[1] if len(sys.argv) > 1 else os.path.join(HERE, "golden.json")
+    text = json.dumps(out, indent=1, sort_keys=True)
+    # Lists of numbers on one line each (the membership runs, the Boyce
+    # windows), so that the file stays small and a diff still points at
+    # the value that moved.
+    text = re.sub(r"\[\s+([-0-9.eE+,\s]+?)\s+\]", lambda m: "[" + ", ".join(m.group(1).split(",")).replace("  ", "").replace("\n", "").replace(" ,", ",") + "]", text)
+    with open(path, "w") as f:
+        f.write(text + "\n")
+
+
+if __name__ == "__main__":
+    main()
