@@ -109,6 +109,10 @@ type e2eScore struct {
 	Boyce struct {
 		Defined bool    `json:"defined"`
 		Index   float64 `json:"index"`
+		// Exact is true when every value of the extent's cells is a
+		// presence value or a fixed threshold: then the window areas
+		// and the index are exact.
+		Exact bool `json:"exact"`
 		// One entry per window of the 100: midpoint, share of test
 		// presences, and bounds on the share of area (golden.py boyce).
 		Mid []float64 `json:"mid"`
@@ -354,10 +358,6 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 	for _, s := range res.Scores {
 		scores[s.Model+"/"+s.Extent] = s
 	}
-	types := map[string]string{}
-	for _, m := range st.Spec.Models {
-		types[m.Name] = m.Type
-	}
 	for _, s := range exp.Scores {
 		if !same[s.Extent] {
 			continue
@@ -409,21 +409,20 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 				t.Errorf("%s: threshold %+v, want %+v (numpy, scipy binomtest)", lab, q, th)
 			}
 		}
-		checkE2EBoyce(t, lab, o.Boyce, s, types[s.Model] != "Byte")
+		checkE2EBoyce(t, lab, o.Boyce, s)
 	}
 }
 
 // checkE2EBoyce checks the Boyce index's windows against golden.py's
 // boyce: every window areasweep uses must exist, its P/E must lie within
 // the bounds that the documented histogram (bins at most (max-min)/2047
-// wide, area spread over each bin) allows around the exact window areas,
-// every window with area beyond a bin's width of its ends must be used,
-// and, for models with many distinct values, the index must lie within
-// 0.01 of the exact one (scipy.stats.spearmanr; measured: at most 0.0014).
-// A Byte model's few values sit on bin edges, where a window end that
-// falls on a value can leave out that value's area that P counts, so its
-// index is not compared (measured difference 0.03; README, Limits).
-func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore, index bool) {
+// wide, area spread over each bin, the area at presence values exact)
+// allows around the exact window areas, and every window with area beyond
+// a bin's width of its ends must be used. The index must equal the exact
+// one (scipy.stats.spearmanr) within 1e-9 when every value of the cells
+// is a presence value or threshold (the Byte model), and within 0.01
+// otherwise (measured: at most 0.0014).
+func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore) {
 	t.Helper()
 	if (b != nil) != s.Boyce.Defined {
 		t.Errorf("%s: Boyce index defined %v, want %v", lab, b != nil, s.Boyce.Defined)
@@ -464,7 +463,11 @@ func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore, index 
 			t.Errorf("%s: Boyce window at %v (E at least %v) not used", lab, w.Mid[i], w.ELo[i])
 		}
 	}
-	if index && math.Abs(b.Index-s.Boyce.Index) > 0.01 {
-		t.Errorf("%s: Boyce index %v, want %v within 0.01 (scipy spearmanr on exact window areas)", lab, b.Index, s.Boyce.Index)
+	tol := 0.01
+	if s.Boyce.Exact {
+		tol = 1e-9
+	}
+	if math.Abs(b.Index-s.Boyce.Index) > tol {
+		t.Errorf("%s: Boyce index %v, want %v within %v (scipy spearmanr on exact window areas)", lab, b.Index, s.Boyce.Index, tol)
 	}
 }

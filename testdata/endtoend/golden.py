@@ -147,7 +147,7 @@ STUDIES = [
             [[5.013, 62.017], [26.021, 61.513], [27.029, 74.011], [15.037, 78.023], [4.019, 73.031], [5.013, 62.017]],
             [[12.011, 67.013], [18.027, 67.013], [18.027, 70.519], [12.011, 70.519], [12.011, 67.013]],
         ]]),
-        region_buffers=[], e=[0.05, 0.1, 0.3], thresholds=[1.0, 3.0], train=24, test=40,
+        region_buffers=[], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
     ),
 ]
 ITERATIONS, SEED = 10, 11
@@ -505,7 +505,7 @@ def thresholds(bg, w, test, train_all, fixed):
     return out
 
 
-def boyce(bg, w, test, width=0.1, steps=100):
+def boyce(bg, w, test, layout, width=0.1, steps=100):
     """Continuous Boyce index (Hirzel et al. 2006) with exact window areas:
     windows of width 0.1 (max - min) in 100 equal steps, both ends
     inclusive, the last one ending at max; P = share of test presences and
@@ -519,7 +519,10 @@ def boyce(bg, w, test, width=0.1, steps=100):
     between the exact area of [lo + delta, hi - delta] (every bin holding
     such a value lies wholly inside the window) and that of [lo - delta,
     hi + delta] (no bin reaching into the window holds a value farther
-    out): e_lo and e_hi below, with delta = (max - min)/2047."""
+    out): e_lo and e_hi below, with delta = (max - min)/2047. The area at
+    each layout value (the model's values at every scored presence, and the
+    fixed thresholds) is exact (README), so when every value of the cells
+    is a layout value ("exact") E and the index are exact too."""
     mn, mx = bg.min(), bg.max()
     span = mx - mn
     wd = width * span
@@ -543,6 +546,7 @@ def boyce(bg, w, test, width=0.1, steps=100):
     # One list per quantity, in window order.
     out = {k: [float(x[i]) for x in windows] for i, k in enumerate(["mid", "p", "e_lo", "e_hi"])}
     out["defined"] = len(fs) >= 3 and len(set(fs)) >= 2
+    out["exact"] = bool(np.isin(np.unique(bg), layout).all())
     if out["defined"]:
         out["index"] = float(spearmanr(fs, mids).statistic)
     return out
@@ -642,6 +646,7 @@ def study(spec):
     scores = []
     for m, v in zip(spec["models"], vals):
         train_all = np.array([v[c] for c in train_cells if not np.isnan(v[c])])
+        layout = np.r_[train_all, [v[c] for c in test_cells if not np.isnan(v[c])], spec["thresholds"]]
         for eid, mask, amb in extents:
             cells = mask & ~np.isnan(v)
             bg, wt = v[cells], area[cells]
@@ -663,7 +668,7 @@ def study(spec):
             s["auc_se"] = float(math.sqrt(np.sum((pl - pl.mean()) ** 2) / (n * (n - 1)))) if n >= 2 else 0.0
             s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
             s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
-            s["boyce"] = boyce(bg, wt, te)
+            s["boyce"] = boyce(bg, wt, te, layout)
             scores.append(s)
     return {"points": points, "extents": ext_out, "scores": scores}
 
