@@ -9,16 +9,19 @@ from the documented rules WITHOUT areasweep:
 
   studies   utm      EPSG:32633 (UTM 33N, not equal-area), Int16 model with
                      scale and offset and a nodata value, plus a Float32 model;
-                     region given in longitude/latitude (CRS84);
+                     region given in longitude/latitude (CRS84), grown 15 km;
             laea     EPSG:3035 (equal-area), Float32 model with NaN as no data,
                      region with a hole given in EPSG:3035, one grown and one
                      shrunk region buffer;
             dateline latitude-longitude grid running 170..190 degrees east,
-                     region as two polygons split at 180, points written on
-                     both sides of the antimeridian (-180..180);
+                     region as two polygons split at 180, grown 25 km and
+                     shrunk 40 km (the cut at 180 is no boundary), points
+                     written on both sides of the antimeridian (-180..180),
+                     100 km discs around the training points;
             arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
                      Float32 model and a Byte model with heavy ties (floor 0,
-                     nodata 255), region with a hole.
+                     nodata 255), region with a hole grown 30 km, 60 km
+                     discs around the training points.
 
   membership  cell centres rasterized with GDAL (gdal.RasterizeLayer, whose
               default burns the cells whose centre is inside: the documented
@@ -28,7 +31,10 @@ from the documented rules WITHOUT areasweep:
               (great circles become straight lines) and a point-in-polygon
               test; region buffers from pyproj Geod(ellps="WGS84").inv
               (Karney 2013) from each cell centre to the boundary (edges
-              straight in the grid CRS, densified every 50 m). areasweep
+              straight in the grid CRS, densified every 50 m or 0.0005
+              degrees, edges along the antimeridian left out as cuts);
+              point buffers from Geod.inv from each cell centre to every
+              scored training point. areasweep
               densifies the boundary every cell side (README), which can
               overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
               cells inside the buffer by less than that are "ambiguous",
@@ -70,6 +76,7 @@ import sys
 import numpy as np
 from osgeo import gdal, ogr, osr
 from pyproj import Geod, Transformer
+from scipy.spatial import cKDTree
 from scipy.stats import binomtest, spearmanr
 from sklearn.metrics import roc_auc_score
 
@@ -107,7 +114,7 @@ STUDIES = [
         ],
         region=dict(crs="CRS84", features=[[[[14.5531, 48.0517], [16.5523, 48.1019], [16.7041, 48.9032], [15.6113, 48.5487],
                                               [14.6027, 48.8521], [14.5531, 48.0517]]]]),
-        region_buffers=[], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
+        region_buffers=[15], point_buffers=[], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
     ),
     dict(
         name="laea", crs="EPSG:3035", width=150, height=110,
@@ -120,7 +127,7 @@ STUDIES = [
              [4340317, 2820211]],
             [[4420173, 2870329], [4470231, 2880117], [4450387, 2920263], [4420173, 2870329]],
         ]]),
-        region_buffers=[-6, 10], e=[0.05, 0.2], thresholds=[1.5], train=20, test=35,
+        region_buffers=[-6, 10], point_buffers=[], e=[0.05, 0.2], thresholds=[1.5], train=20, test=35,
     ),
     dict(
         name="dateline", crs="EPSG:4326", width=200, height=100,
@@ -133,7 +140,7 @@ STUDIES = [
             [[[174.513, -12.017], [180.0, -12.017], [180.0, -17.523], [175.031, -18.029], [174.513, -12.017]]],
             [[[-180.0, -12.017], [-175.523, -12.531], [-176.037, -17.011], [-180.0, -17.523], [-180.0, -12.017]]],
         ]),
-        region_buffers=[], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
+        region_buffers=[-40, 25], point_buffers=[100], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
     ),
     dict(
         name="arctic", crs="EPSG:4326", width=300, height=200,
@@ -147,7 +154,7 @@ STUDIES = [
             [[5.013, 62.017], [26.021, 61.513], [27.029, 74.011], [15.037, 78.023], [4.019, 73.031], [5.013, 62.017]],
             [[12.011, 67.013], [18.027, 67.013], [18.027, 70.519], [12.011, 70.519], [12.011, 67.013]],
         ]]),
-        region_buffers=[], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
+        region_buffers=[30], point_buffers=[60], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
     ),
 ]
 ITERATIONS, SEED = 10, 11
@@ -333,35 +340,70 @@ def centres(spec):
     return xs, ys
 
 
-def boundary_distance_m(spec, geoms, cand):
-    """Geodesic distance (m) from the centres of cells cand to the region's
-    boundary, its edges straight in the grid CRS and densified every 50 m."""
+def plane(spec):
+    """A planar metric CRS for picking cells near a buffer's edge: the
+    grid CRS itself when projected, else an azimuthal equidistant
+    projection about the grid's centre."""
+    if spec["crs"] != "EPSG:4326":
+        return lambda x, y: (np.asarray(x, float), np.asarray(y, float))
+    gt = spec["gt"]
+    lon0 = gt[0] + spec["width"] * gt[1] / 2
+    lat0 = gt[3] + spec["height"] * gt[5] / 2
+    t = Transformer.from_crs("EPSG:4326", f"+proj=aeqd +lat_0={lat0!r} +lon_0={lon0!r} +datum=WGS84", always_xy=True)
+    return lambda x, y: t.transform(x, y)
+
+
+def boundary_points(spec, geoms):
+    """The region's boundary in the grid CRS, its edges straight there and
+    densified every 50 m (0.0005 degrees on latitude-longitude grids).
+    Edges along the antimeridian are cuts, not boundary (README: a region
+    stored as two polygons split at 180 degrees is buffered as one)."""
+    geographic = spec["crs"] == "EPSG:4326"
+    step = 0.0005 if geographic else 50.0
     pts = []
     for g in geoms:
         for i in range(g.GetGeometryCount()):
             ring = np.array(g.GetGeometryRef(i).GetPoints())[:, :2]
             for a, b in zip(ring[:-1], ring[1:]):
-                n = max(1, int(math.ceil(math.hypot(*(b - a)) / 50.0)))
+                if geographic and a[0] == b[0] and (a[0] - 180) % 360 == 0:
+                    continue
+                n = max(1, int(math.ceil(math.hypot(*(b - a)) / step)))
                 f = np.arange(n)[:, None] / n
                 pts.append(a + f * (b - a))
-    pts = np.vstack(pts)
+    return np.vstack(pts)
+
+
+def boundary_distances(spec, geoms):
+    """For every cell centre: the planar distance (see plane) to the
+    region's boundary, and a function giving the geodesic distance (m,
+    pyproj Geod.inv, WGS84) from the centres of cells cand to it."""
+    pts = boundary_points(spec, geoms)
+    to_plane = plane(spec)
+    bx, by = to_plane(*to_lonlat(spec, pts[:, 0], pts[:, 1])) if spec["crs"] == "EPSG:4326" else to_plane(pts[:, 0], pts[:, 1])
     blon, blat = to_lonlat(spec, pts[:, 0], pts[:, 1])
     xs, ys = centres(spec)
-    clon, clat = to_lonlat(spec, xs[cand], ys[cand])
-    out = np.empty(len(cand))
-    for i, k in enumerate(cand):
-        # Only the boundary points whose planar distance is within 10% (plus
-        # 2 km) of the nearest one's can be the geodesically nearest.
-        pd = np.hypot(pts[:, 0] - xs[k], pts[:, 1] - ys[k])
-        sel = pd <= pd.min() * 1.1 + 2000.0
-        _, _, d = GEOD.inv(np.full(sel.sum(), clon[i]), np.full(sel.sum(), clat[i]), blon[sel], blat[sel])
-        out[i] = d.min()
-    return out
+    clon, clat = to_lonlat(spec, xs, ys)
+    cx, cy = to_plane(clon, clat) if spec["crs"] == "EPSG:4326" else to_plane(xs, ys)
+    tree = cKDTree(np.c_[bx, by])
+    pd, _ = tree.query(np.c_[cx, cy])
+
+    def geodesic(cand):
+        out = np.empty(len(cand))
+        for i, k in enumerate(cand):
+            # Only the boundary points whose planar distance is within 10%
+            # (plus 2 km) of the nearest one's can be the geodesically
+            # nearest.
+            sel = tree.query_ball_point([cx[k], cy[k]], pd[k] * 1.1 + 2000.0)
+            _, _, d = GEOD.inv(np.full(len(sel), clon[k]), np.full(len(sel), clat[k]), blon[sel], blat[sel])
+            out[i] = d.min()
+        return out
+
+    return pd, geodesic
 
 
 def planar_boundary_distance(geoms, xs, ys):
-    """Planar distance from each point to the polygons' boundary (grid CRS),
-    used only to pick the cells near a buffer's edge."""
+    """Planar distance (grid CRS units) from each point to the polygons'
+    edges, to make sure no cell centre lies on one."""
     best = np.full(len(xs), np.inf)
     for g in geoms:
         for i in range(g.GetGeometryCount()):
@@ -371,6 +413,19 @@ def planar_boundary_distance(geoms, xs, ys):
                 t = np.clip(((xs - a[0]) * ab[0] + (ys - a[1]) * ab[1]) / (ab @ ab), 0, 1)
                 best = np.minimum(best, np.hypot(xs - a[0] - t * ab[0], ys - a[1] - t * ab[1]))
     return best
+
+
+def side_m(spec):
+    """The longest cell side in metres (latitude-longitude grids: the
+    north-south side or the east-west side at the equatorward edge)."""
+    gt = spec["gt"]
+    if spec["crs"] != "EPSG:4326":
+        return max(abs(gt[1]), abs(gt[5]))
+    top, bot = gt[3], gt[3] + spec["height"] * gt[5]
+    lat = min(abs(top), abs(bot)) if top * bot > 0 else 0.0
+    _, _, ew = GEOD.inv(0, lat, gt[1], lat)
+    _, _, ns = GEOD.inv(0, lat, 0, lat + abs(gt[5]) * (1 if lat >= 0 else -1))
+    return max(ew, ns)
 
 
 def hull_mask(spec, train_lon, train_lat):
@@ -602,18 +657,18 @@ def study(spec):
     extents = [("base", base, [])]
     if spec["region_buffers"]:
         inside = rasterize(spec, geoms)
-        pd = planar_boundary_distance(geoms, xs, ys)
-        diag = math.hypot(gt[1], gt[5])
+        pd, geodesic = boundary_distances(spec, geoms)
+        side = side_m(spec)
         for d in sorted(spec["region_buffers"]):
             dm = abs(d) * 1000.0
-            near = np.nonzero((pd > dm * 0.9 - 2 * diag) & (pd < dm * 1.1 + 2 * diag))[0]
+            near = np.nonzero((pd > dm * 0.9 - 2 * side) & (pd < dm * 1.1 + 2 * side))[0]
             within = pd <= dm  # far from the edge, planar and geodesic agree on the side
-            gd = boundary_distance_m(spec, geoms, near)
+            gd = geodesic(near)
             within[near] = gd <= dm
             # README: the boundary is densified every cell side, so a
             # distance is overestimated by at most sqrt(g^2 + (s/2)^2) - g:
             # only cells just inside the buffer's edge can be missed.
-            half = max(abs(gt[1]), abs(gt[5])) / 2
+            half = side / 2
             amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3)]
             if d > 0:
                 mask = (inside | within) & valid
@@ -622,6 +677,20 @@ def study(spec):
                 mask = inside & ~within & valid
                 eid = f"region_minus{-d:g}km"
             extents.append((eid, mask, sorted(int(a) for a in amb)))
+    tlon = lon[[p["id"] - 2 for p in scored if p["role"] == "train"]]
+    tlat = lat[[p["id"] - 2 for p in scored if p["role"] == "train"]]
+    if spec["point_buffers"]:
+        clon, clat = to_lonlat(spec, xs, ys)
+        near = np.full(len(xs), np.inf)
+        for a, b in zip(tlon, tlat):
+            _, _, d = GEOD.inv(clon, clat, np.full(len(xs), a), np.full(len(xs), b))
+            near = np.minimum(near, d)
+        for d in sorted(spec["point_buffers"]):
+            dm = d * 1000.0
+            # Centres within a millimetre of the disc's edge are left to
+            # rounding.
+            amb = np.nonzero(np.abs(near - dm) < 1e-3)[0]
+            extents.append((f"points_{d:g}km", (near <= dm) & valid, sorted(int(a) for a in amb)))
     tlon = lon[[p["id"] - 2 for p in scored if p["role"] == "train"]]
     tlat = lat[[p["id"] - 2 for p in scored if p["role"] == "train"]]
     hm, _ = hull_mask(spec, tlon, tlat)
