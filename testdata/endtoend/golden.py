@@ -61,7 +61,11 @@ from the documented rules WITHOUT areasweep:
               Boyce index (Hirzel et al. 2006) with exact window areas from
               the cells and scipy.stats.spearmanr, and for each of the 100
               windows the bounds that areasweep's histogram reading of the
-              window's area must respect (see boyce).
+              window's area must respect (see boyce); the same scores,
+              Boyce aside, for the distance-only null (minus the pyproj
+              Geod.inv distance in metres from each cell centre to the
+              nearest scored training point) and the sorting-bias means
+              (Hijmans 2012) per extent.
 
 Deterministic: fixed seeds, no clock, sorted keys. Run with /usr/bin/python3
 (Debian's python3-gdal, python3-numpy, python3-sklearn, python3-scipy,
@@ -712,8 +716,35 @@ def study(spec):
             "rows": runs(mask.reshape(h, w)),
         })
 
+    # The distance-only null (README): minus the geodesic distance from
+    # each cell's centre to the nearest scored training point, on the cells
+    # with data in the first model; scored like a model, Boyce aside (its
+    # histogram has a floor of its own).
+    clon, clat = to_lonlat(spec, xs, ys)
+    near = np.full(len(xs), np.inf)
+    for a, b in zip(tlon, tlat):
+        _, _, d = GEOD.inv(clon, clat, np.full(len(xs), a), np.full(len(xs), b))
+        near = np.minimum(near, d)
+    null = np.where(valid, -near, np.nan)  # metres
+    # Sorting bias (Hijmans 2012): test points' own coordinates to the
+    # nearest training point, against the area-weighted mean over the
+    # extent's cells.
+    tdist = {}
+    for p in scored:
+        if p["role"] == "test":
+            i = p["id"] - 2
+            _, _, d = GEOD.inv(np.full(len(tlon), lon[i]), np.full(len(tlon), lat[i]), tlon, tlat)
+            tdist[p["cell"]] = float(d.min()) / 1000.0
+    for e, (eid, mask, amb) in zip(ext_out, extents):
+        td = [tdist[c] for c in test_cells if mask[c]]
+        if td and mask.any():
+            bgm = float(np.sum(area[mask] * near[mask]) / np.sum(area[mask]) / 1000.0)
+            e["sorting_bias"] = {"test_mean_km": float(np.mean(td)), "background_mean_km": bgm,
+                                 "ratio_mean": float(np.mean(td)) / bgm}
+
     scores = []
-    for m, v in zip(spec["models"], vals):
+    models = [(m["name"], v) for m, v in zip(spec["models"], vals)] + [("distance_null", null)]
+    for name, v in models:
         train_all = np.array([v[c] for c in train_cells if not np.isnan(v[c])])
         layout = np.r_[train_all, [v[c] for c in test_cells if not np.isnan(v[c])], spec["thresholds"]]
         for eid, mask, amb in extents:
@@ -721,7 +752,7 @@ def study(spec):
             bg, wt = v[cells], area[cells]
             te = np.array([v[c] for c in test_cells if cells[c]])
             tr = np.array([v[c] for c in train_cells if cells[c]])
-            s = {"model": m["name"], "extent": eid, "cells": int(cells.sum()), "area_km2": float(wt.sum()),
+            s = {"model": name, "extent": eid, "cells": int(cells.sum()), "area_km2": float(wt.sum()),
                  "test_points": len(te), "train_points": len(tr)}
             if status[eid] != "ok" or len(te) == 0 or bg.min() == bg.max():
                 s["scored"] = False
@@ -737,7 +768,8 @@ def study(spec):
             s["auc_se"] = float(math.sqrt(np.sum((pl - pl.mean()) ** 2) / (n * (n - 1)))) if n >= 2 else 0.0
             s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
             s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
-            s["boyce"] = boyce(bg, wt, te, layout)
+            if name != "distance_null":
+                s["boyce"] = boyce(bg, wt, te, layout)
             scores.append(s)
     return {"points": points, "extents": ext_out, "scores": scores}
 
