@@ -306,12 +306,17 @@ func (g *Grid) MinCellSideM() float64 {
 		xs := []float64{x0, x0 + gt[1], x0}
 		ys := []float64{y0 + gt[5]/2, y0 + gt[5]/2, y0 + gt[5]}
 		if g.Geographic {
-			// East-west along the cell's poleward edge, the shorter one.
-			ys[0], ys[1] = y0, y0
-			if math.Abs(y0+gt[5]) > math.Abs(y0) {
-				ys[0], ys[1] = y0+gt[5], y0+gt[5]
+			// East-west along the cell's poleward edge, the shorter one;
+			// north-south from that edge to the other one. (Point 2 was
+			// the south edge whatever the hemisphere, which in the
+			// southern one is the poleward edge itself: a side of 0, and
+			// no densification of the hull's edges.)
+			top, bot := math.Max(-90, math.Min(90, y0)), math.Max(-90, math.Min(90, y0+gt[5]))
+			pole, other := top, bot
+			if math.Abs(bot) > math.Abs(top) {
+				pole, other = bot, top
 			}
-			ys[0], ys[1] = math.Max(-90, math.Min(90, ys[0])), math.Max(-90, math.Min(90, ys[1]))
+			ys[0], ys[1], ys[2] = pole, pole, other
 		}
 		lons := make([]float64, 3)
 		lats := make([]float64, 3)

@@ -39,6 +39,7 @@ type e2eStudy struct {
 		} `json:"region"`
 		RegionBuffers []float64 `json:"region_buffers"`
 		PointBuffers  []float64 `json:"point_buffers"`
+		HullBuffers   []float64 `json:"hull_buffers"`
 		E             []float64 `json:"e"`
 		Thresholds    []float64 `json:"thresholds"`
 		Points        []struct {
@@ -235,7 +236,7 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 		}
 		return "[" + strings.Join(s, ", ") + "]"
 	}
-	fmt.Fprintf(&yaml, "occurrences: occ.csv\nregion: region.geojson\nregion-buffers: %s\npoint-buffers: %s\nhull-buffers: [0]\n", list(sp.RegionBuffers), list(sp.PointBuffers))
+	fmt.Fprintf(&yaml, "occurrences: occ.csv\nregion: region.geojson\nregion-buffers: %s\npoint-buffers: %s\nhull-buffers: %s\n", list(sp.RegionBuffers), list(sp.PointBuffers), list(append([]float64{0}, sp.HullBuffers...)))
 	fmt.Fprintf(&yaml, "e: %s\nthresholds: %s\niterations: %d\nseed: %d\nmembership-tif: true\nout: out\n", list(sp.E), list(sp.Thresholds), g.Iterations, g.Seed)
 	for name, body := range map[string]string{"occ.csv": occ.String(), "region.geojson": region, "study.yaml": yaml.String()} {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(body), 0o644); err != nil {

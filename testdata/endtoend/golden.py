@@ -9,7 +9,8 @@ from the documented rules WITHOUT areasweep:
 
   studies   utm      EPSG:32633 (UTM 33N, not equal-area), Int16 model with
                      scale and offset and a nodata value, plus a Float32 model;
-                     region given in longitude/latitude (CRS84), grown 15 km;
+                     region given in longitude/latitude (CRS84), grown 15 km,
+                     the training points' hull grown 10 km;
             laea     EPSG:3035 (equal-area), Float32 model with NaN as no data,
                      region with a hole given in EPSG:3035, one grown and one
                      shrunk region buffer;
@@ -17,11 +18,12 @@ from the documented rules WITHOUT areasweep:
                      region as two polygons split at 180, grown 25 km and
                      shrunk 40 km (the cut at 180 is no boundary), points
                      written on both sides of the antimeridian (-180..180),
-                     100 km discs around the training points;
+                     100 km discs around the training points, their hull
+                     (across 180) grown 50 km;
             arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
                      Float32 model and a Byte model with heavy ties (floor 0,
                      nodata 255), region with a hole grown 30 km, 60 km
-                     discs around the training points.
+                     discs around the training points, their hull grown 40 km.
 
   membership  cell centres rasterized with GDAL (gdal.RasterizeLayer, whose
               default burns the cells whose centre is inside: the documented
@@ -34,7 +36,9 @@ from the documented rules WITHOUT areasweep:
               straight in the grid CRS, densified every 50 m or 0.0005
               degrees, edges along the antimeridian left out as cuts);
               point buffers from Geod.inv from each cell centre to every
-              scored training point. areasweep
+              scored training point; hull buffers from Geod.inv to the
+              hull's edges taken as ellipsoidal geodesics between its
+              vertices (Geod.npts every 100 m). areasweep
               densifies the boundary every cell side (README), which can
               overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
               cells inside the buffer by less than that are "ambiguous",
@@ -118,7 +122,7 @@ STUDIES = [
         ],
         region=dict(crs="CRS84", features=[[[[14.5531, 48.0517], [16.5523, 48.1019], [16.7041, 48.9032], [15.6113, 48.5487],
                                               [14.6027, 48.8521], [14.5531, 48.0517]]]]),
-        region_buffers=[15], point_buffers=[], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
+        region_buffers=[15], point_buffers=[], hull_buffers=[10], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
     ),
     dict(
         name="laea", crs="EPSG:3035", width=150, height=110,
@@ -131,7 +135,7 @@ STUDIES = [
              [4340317, 2820211]],
             [[4420173, 2870329], [4470231, 2880117], [4450387, 2920263], [4420173, 2870329]],
         ]]),
-        region_buffers=[-6, 10], point_buffers=[], e=[0.05, 0.2], thresholds=[1.5], train=20, test=35,
+        region_buffers=[-6, 10], point_buffers=[], hull_buffers=[], e=[0.05, 0.2], thresholds=[1.5], train=20, test=35,
     ),
     dict(
         name="dateline", crs="EPSG:4326", width=200, height=100,
@@ -144,7 +148,7 @@ STUDIES = [
             [[[174.513, -12.017], [180.0, -12.017], [180.0, -17.523], [175.031, -18.029], [174.513, -12.017]]],
             [[[-180.0, -12.017], [-175.523, -12.531], [-176.037, -17.011], [-180.0, -17.523], [-180.0, -12.017]]],
         ]),
-        region_buffers=[-40, 25], point_buffers=[100], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
+        region_buffers=[-40, 25], point_buffers=[100], hull_buffers=[50], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
     ),
     dict(
         name="arctic", crs="EPSG:4326", width=300, height=200,
@@ -158,7 +162,7 @@ STUDIES = [
             [[5.013, 62.017], [26.021, 61.513], [27.029, 74.011], [15.037, 78.023], [4.019, 73.031], [5.013, 62.017]],
             [[12.011, 67.013], [18.027, 67.013], [18.027, 70.519], [12.011, 70.519], [12.011, 67.013]],
         ]]),
-        region_buffers=[30], point_buffers=[60], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
+        region_buffers=[30], point_buffers=[60], hull_buffers=[40], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
     ),
 ]
 ITERATIONS, SEED = 10, 11
@@ -377,14 +381,16 @@ def boundary_points(spec, geoms):
     return np.vstack(pts)
 
 
-def boundary_distances(spec, geoms):
+def boundary_distances(spec, blon, blat, bxy=None):
     """For every cell centre: the planar distance (see plane) to the
-    region's boundary, and a function giving the geodesic distance (m,
-    pyproj Geod.inv, WGS84) from the centres of cells cand to it."""
-    pts = boundary_points(spec, geoms)
+    boundary points blon, blat (WGS84; bxy, their grid-CRS coordinates, on
+    projected grids), and a function giving the geodesic distance (m,
+    pyproj Geod.inv, WGS84) from the centres of cells cand to them."""
     to_plane = plane(spec)
-    bx, by = to_plane(*to_lonlat(spec, pts[:, 0], pts[:, 1])) if spec["crs"] == "EPSG:4326" else to_plane(pts[:, 0], pts[:, 1])
-    blon, blat = to_lonlat(spec, pts[:, 0], pts[:, 1])
+    if spec["crs"] == "EPSG:4326":
+        bx, by = to_plane(blon, blat)
+    else:
+        bx, by = bxy if bxy is not None else from_lonlat(spec, blon, blat)
     xs, ys = centres(spec)
     clon, clat = to_lonlat(spec, xs, ys)
     cx, cy = to_plane(clon, clat) if spec["crs"] == "EPSG:4326" else to_plane(xs, ys)
@@ -465,7 +471,8 @@ def hull_mask(spec, train_lon, train_lat):
     inside = np.ones(len(xs), bool)
     for a, b in zip(hull, np.roll(hull, -1, axis=0)):
         inside &= (b[0] - a[0]) * (qy - a[1]) - (b[1] - a[1]) * (qx - a[0]) >= 0
-    return inside, hull
+    hlon, hlat = t.transform(hull[:, 0], hull[:, 1], direction="INVERSE")
+    return inside, np.asarray(hlon), np.asarray(hlat)
 
 
 # ---------------------------------------------------------------- metrics
@@ -661,7 +668,8 @@ def study(spec):
     extents = [("base", base, [])]
     if spec["region_buffers"]:
         inside = rasterize(spec, geoms)
-        pd, geodesic = boundary_distances(spec, geoms)
+        pts = boundary_points(spec, geoms)
+        pd, geodesic = boundary_distances(spec, *to_lonlat(spec, pts[:, 0], pts[:, 1]), bxy=(pts[:, 0], pts[:, 1]))
         side = side_m(spec)
         for d in sorted(spec["region_buffers"]):
             dm = abs(d) * 1000.0
@@ -697,8 +705,31 @@ def study(spec):
             extents.append((f"points_{d:g}km", (near <= dm) & valid, sorted(int(a) for a in amb)))
     tlon = lon[[p["id"] - 2 for p in scored if p["role"] == "train"]]
     tlat = lat[[p["id"] - 2 for p in scored if p["role"] == "train"]]
-    hm, _ = hull_mask(spec, tlon, tlat)
+    hm, hlon, hlat = hull_mask(spec, tlon, tlat)
     extents.append(("hull", hm & valid, []))
+    if spec["hull_buffers"]:
+        # README: the hull grown by d is the hull and the cells within d of
+        # its boundary, measured on WGS84 to its edges taken as ellipsoidal
+        # geodesics between the vertices (pyproj Geod.npts every 100 m).
+        blon, blat = [], []
+        for i in range(len(hlon)):
+            a, b = (hlon[i], hlat[i]), (hlon[(i + 1) % len(hlon)], hlat[(i + 1) % len(hlon)])
+            _, _, dd = GEOD.inv(a[0], a[1], b[0], b[1])
+            mid = GEOD.npts(a[0], a[1], b[0], b[1], int(dd // 100))
+            blon += [a[0]] + [q[0] for q in mid]
+            blat += [a[1]] + [q[1] for q in mid]
+        blon, blat = np.array(blon), np.array(blat)
+        pd, geodesic = boundary_distances(spec, blon, blat)
+        side = side_m(spec)
+        for d in sorted(spec["hull_buffers"]):
+            dm = d * 1000.0
+            near = np.nonzero((pd > dm * 0.9 - 2 * side) & (pd < dm * 1.1 + 2 * side))[0]
+            within = pd <= dm
+            gd = geodesic(near)
+            within[near] = gd <= dm
+            half = side / 2
+            amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3) & ~hm[near]]
+            extents.append((f"hull_{d:g}km", (hm | within) & valid, sorted(int(a) for a in amb)))
     extents.append(("whole_raster", valid.copy(), []))
     ext_out = []
     status = {}
