@@ -68,6 +68,15 @@ type e2eStudy struct {
 			Rows [][]int `json:"rows"`
 		} `json:"extents"`
 		Scores []e2eScore `json:"scores"`
+		Rings  []struct {
+			Chain, Model, Inner, Outer string
+			InnerAreaKm2               float64 `json:"inner_area_km2"`
+			RingAreaKm2                float64 `json:"ring_area_km2"`
+			RingCells                  int64   `json:"ring_cells"`
+			AUCInner                   float64 `json:"auc_inner"`
+			AUCRing                    float64 `json:"auc_ring"`
+			AUCOuter                   float64 `json:"auc_outer"`
+		} `json:"rings"`
 	} `json:"expected"`
 }
 
@@ -85,17 +94,21 @@ type e2eModel struct {
 }
 
 type e2eScore struct {
-	Model, Extent string
-	Scored        bool
-	Cells         int64
-	AreaKm2       float64 `json:"area_km2"`
-	TestPoints    int     `json:"test_points"`
-	TrainPoints   int     `json:"train_points"`
-	AUC           float64 `json:"auc"`
-	AUCUnweighted float64 `json:"auc_unweighted"`
-	AUCTrain      float64 `json:"auc_train"`
-	AUCSE         float64 `json:"auc_se"`
-	PartialROC    []struct {
+	Model, Extent         string
+	Scored                bool
+	Cells                 int64
+	AreaKm2               float64 `json:"area_km2"`
+	TestPoints            int     `json:"test_points"`
+	TrainPoints           int     `json:"train_points"`
+	AUC                   float64 `json:"auc"`
+	AUCUnweighted         float64 `json:"auc_unweighted"`
+	AUCTrain              float64 `json:"auc_train"`
+	AUCSE                 float64 `json:"auc_se"`
+	AUCUnweightedSEDeLong float64 `json:"auc_unweighted_se_delong"`
+	// Placements and PlacementsUnweighted are [point id, placement] pairs.
+	Placements           [][2]float64 `json:"placements"`
+	PlacementsUnweighted [][2]float64 `json:"placements_unweighted"`
+	PartialROC           []struct {
 		E             float64  `json:"e"`
 		Defined       bool     `json:"defined"`
 		XE            float64  `json:"x_e"`
@@ -398,9 +411,29 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 		for _, c := range []struct {
 			name      string
 			got, want float64
-		}{{"auc", o.AUC, s.AUC}, {"auc_unweighted", o.AUCUnweighted, s.AUCUnweighted}, {"auc_train", o.AUCTrain, s.AUCTrain}, {"auc_se", o.AUCSE, s.AUCSE}} {
+		}{{"auc", o.AUC, s.AUC}, {"auc_unweighted", o.AUCUnweighted, s.AUCUnweighted}, {"auc_train", o.AUCTrain, s.AUCTrain}, {"auc_se", o.AUCSE, s.AUCSE},
+			{"auc_unweighted_se_delong", o.AUCUnweightedSEDeLong, s.AUCUnweightedSEDeLong}} {
 			if math.Abs(c.got-c.want) > 1e-9 {
 				t.Errorf("%s: %s %v, want %v (sklearn roc_auc_score / numpy)", lab, c.name, c.got, c.want)
+			}
+		}
+		// Placements per test point (numpy, golden.py placements): the
+		// share of the extent's area below the point plus half the share
+		// at its value.
+		for _, c := range []struct {
+			name string
+			ids  []int
+			got  []float64
+			want [][2]float64
+		}{{"placements", o.TestPointIDs, o.Placements, s.Placements}, {"placements_unweighted", o.TestPointIDs, o.PlacementsUnweighted, s.PlacementsUnweighted}} {
+			if len(c.ids) != len(c.want) || len(c.got) != len(c.want) {
+				t.Errorf("%s: %d %s, want %d", lab, len(c.got), c.name, len(c.want))
+				continue
+			}
+			for k, w := range c.want {
+				if c.ids[k] != int(w[0]) || math.Abs(c.got[k]-w[1]) > 1e-9 {
+					t.Errorf("%s: %s[%d] point %d %v, want point %v %v (numpy)", lab, c.name, k, c.ids[k], c.got[k], w[0], w[1])
+				}
 			}
 		}
 		// Partial ROC: golden.py's partial_roc, the curve on the area axis
@@ -432,6 +465,33 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 			checkE2EBoyce(t, lab, o.Boyce, s)
 		}
 	}
+	// Rings of the nested chains: sklearn roc_auc_score of the outer
+	// member's test presences against the inner, ring and outer cells.
+	rings := map[string]report.Ring{}
+	for _, r := range res.Rings {
+		rings[r.Chain+"/"+r.Model+"/"+r.Inner+"/"+r.Outer] = r
+	}
+	checked := 0
+	for _, w := range exp.Rings {
+		key := w.Chain + "/" + w.Model + "/" + w.Inner + "/" + w.Outer
+		r, ok := rings[key]
+		if !ok {
+			t.Errorf("ring %s missing", key)
+			continue
+		}
+		if !same[w.Inner] || !same[w.Outer] {
+			continue
+		}
+		checked++
+		if r.RingCells != w.RingCells || relDiff(r.InnerAreaKm2, w.InnerAreaKm2) > 1e-9 || relDiff(r.RingAreaKm2, w.RingAreaKm2) > 1e-9 ||
+			math.Abs(r.AUCInner-w.AUCInner) > 1e-9 || math.Abs(r.AUCRing-w.AUCRing) > 1e-9 || math.Abs(r.AUCOuter-w.AUCOuter) > 1e-9 {
+			t.Errorf("ring %s: %+v, want %+v (sklearn roc_auc_score)", key, r, w)
+		}
+	}
+	if len(res.Rings) != len(exp.Rings) {
+		t.Errorf("%d rings, want %d", len(res.Rings), len(exp.Rings))
+	}
+	t.Logf("%d of %d rings compared (the others hold a buffer whose edge cells differ within the margin)", checked, len(exp.Rings))
 }
 
 // checkE2EBoyce checks the Boyce index's windows against golden.py's

@@ -18,11 +18,11 @@ from the documented rules WITHOUT areasweep:
                      region as two polygons split at 180, grown 25 km and
                      shrunk 40 km (the cut at 180 is no boundary), points
                      written on both sides of the antimeridian (-180..180),
-                     100 km discs around the training points, their hull
+                     100 and 200 km discs around the training points, their hull
                      (across 180) grown 50 km;
             arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
                      Float32 model and a Byte model with heavy ties (floor 0,
-                     nodata 255), region with a hole grown 30 km, 60 km
+                     nodata 255), region with a hole grown 30 km, 60 and 150 km
                      discs around the training points, their hull grown 40 km.
 
   membership  cell centres rasterized with GDAL (gdal.RasterizeLayer, whose
@@ -61,7 +61,9 @@ from the documented rules WITHOUT areasweep:
               fixed) with scipy.stats.binomtest(k, n, p,
               alternative="greater"); the full-sample partial ROC ratio
               (Peterson, Papes & Soberon 2008) from the curve on the area
-              axis written out in numpy (see partial_roc); the continuous
+              axis written out in numpy (see partial_roc); the placements
+              per test point (weighted and unweighted) and DeLong's
+              variance of the unweighted AUC (see delong_se); the continuous
               Boyce index (Hirzel et al. 2006) with exact window areas from
               the cells and scipy.stats.spearmanr, and for each of the 100
               windows the bounds that areasweep's histogram reading of the
@@ -69,7 +71,8 @@ from the documented rules WITHOUT areasweep:
               Boyce aside, for the distance-only null (minus the pyproj
               Geod.inv distance in metres from each cell centre to the
               nearest scored training point) and the sorting-bias means
-              (Hijmans 2012) per extent.
+              (Hijmans 2012) per extent; the rings of the nested chains
+              (AUC against the inner, ring and outer cells, sklearn).
 
 Deterministic: fixed seeds, no clock, sorted keys. Run with /usr/bin/python3
 (Debian's python3-gdal, python3-numpy, python3-sklearn, python3-scipy,
@@ -148,7 +151,7 @@ STUDIES = [
             [[[174.513, -12.017], [180.0, -12.017], [180.0, -17.523], [175.031, -18.029], [174.513, -12.017]]],
             [[[-180.0, -12.017], [-175.523, -12.531], [-176.037, -17.011], [-180.0, -17.523], [-180.0, -12.017]]],
         ]),
-        region_buffers=[-40, 25], point_buffers=[100], hull_buffers=[50], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
+        region_buffers=[-40, 25], point_buffers=[100, 200], hull_buffers=[50], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
     ),
     dict(
         name="arctic", crs="EPSG:4326", width=300, height=200,
@@ -162,7 +165,7 @@ STUDIES = [
             [[5.013, 62.017], [26.021, 61.513], [27.029, 74.011], [15.037, 78.023], [4.019, 73.031], [5.013, 62.017]],
             [[12.011, 67.013], [18.027, 67.013], [18.027, 70.519], [12.011, 70.519], [12.011, 67.013]],
         ]]),
-        region_buffers=[30], point_buffers=[60], hull_buffers=[40], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
+        region_buffers=[30], point_buffers=[60, 150], hull_buffers=[40], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
     ),
 ]
 ITERATIONS, SEED = 10, 11
@@ -795,14 +798,67 @@ def study(spec):
             s["auc_train"] = auc(bg, wt, tr) if len(tr) else 0.0
             pl = placements(bg, wt, te)
             n = len(pl)
-            s["auc_placements_mean"] = float(pl.mean())
             s["auc_se"] = float(math.sqrt(np.sum((pl - pl.mean()) ** 2) / (n * (n - 1)))) if n >= 2 else 0.0
+            ids = [p["id"] for p in scored if p["role"] == "test" and cells[p["cell"]]]
+            s["placements"] = [[i, float(x)] for i, x in zip(ids, pl)]
+            s["placements_unweighted"] = [[i, float(x)] for i, x in zip(ids, placements(bg, np.ones(len(bg)), te))]
+            s["auc_unweighted_se_delong"] = delong_se(bg, te)
             s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
             s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
             if name != "distance_null":
                 s["boyce"] = boyce(bg, wt, te, layout)
             scores.append(s)
-    return {"points": points, "extents": ext_out, "scores": scores}
+
+    # Rings of the nested chains (README "rings[]"): consecutive ok members
+    # of each chain, cut at the first one not inside the next; for each
+    # model, the outer member's test presences scored against the inner
+    # background, the ring (outer minus inner) and the outer background.
+    masks = {eid: mask for eid, mask, _ in extents}
+    ids = [eid for eid, _, _ in extents]
+    chains = {
+        "region": sorted([i for i in ids if i.startswith("region_minus")], key=lambda i: -float(i[12:-2]))
+        + ["base"] + sorted([i for i in ids if i.startswith("region_") and not i.startswith("region_minus")],
+                            key=lambda i: float(i[7:-2])) + ["whole_raster"],
+        "points": sorted([i for i in ids if i.startswith("points_")], key=lambda i: float(i[7:-2])),
+        "hull": ["hull"] + sorted([i for i in ids if i.startswith("hull_")], key=lambda i: float(i[5:-2])),
+    }
+    rings = []
+    for chain, members in chains.items():
+        members = [m for m in members if status[m] == "ok"]
+        for k in range(1, len(members)):
+            if (masks[members[k - 1]] & ~masks[members[k]]).any():
+                members = members[:k]
+                break
+        if len(members) < 2:
+            continue
+        for name, v in models:
+            for inner, outer in zip(members[:-1], members[1:]):
+                have = ~np.isnan(v)
+                mi, mo = masks[inner] & have, masks[outer] & have
+                mr = mo & ~mi
+                te = np.array([v[c] for c in test_cells if mo[c]])
+                if len(te) == 0 or not mi.any() or not mr.any():
+                    continue
+                rings.append({"chain": chain, "model": name, "inner": inner, "outer": outer,
+                              "inner_area_km2": float(area[mi].sum()), "ring_area_km2": float(area[mr].sum()),
+                              "ring_cells": int(mr.sum()), "auc_inner": auc(v[mi], area[mi], te),
+                              "auc_ring": auc(v[mr], area[mr], te), "auc_outer": auc(v[mo], area[mo], te)})
+    return {"points": points, "extents": ext_out, "scores": scores, "rings": rings}
+
+
+def delong_se(bg, pres):
+    """Square root of DeLong, DeLong & Clarke-Pearson's (1988) variance of
+    the unweighted AUC, cells and presences as samples:
+    S10/m + S01/n, with V10 each presence's share of cells below it (ties
+    half), V01 each cell's share of presences above it (ties half), and
+    S the sample variances (denominators m-1 and n-1)."""
+    m, n = len(pres), len(bg)
+    if m < 2 or n < 2:
+        return 0.0
+    sb, sp = np.sort(bg), np.sort(pres)
+    v10 = (np.searchsorted(sb, pres, "left") + np.searchsorted(sb, pres, "right")) / (2 * n)
+    v01 = ((m - np.searchsorted(sp, bg, "right")) + (m - np.searchsorted(sp, bg, "left"))) / (2 * m)
+    return float(math.sqrt(np.var(v10, ddof=1) / m + np.var(v01, ddof=1) / n))
 
 
 def runs(mask2d):
