@@ -37,6 +37,16 @@ type e2eStudy struct {
 			CRS      string          `json:"crs"`
 			Features json.RawMessage `json:"features"` // polygons: rings of [x, y]
 		} `json:"region"`
+		// Ecoregions, when present, are units written to a GeoJSON layer
+		// with an id field "unit".
+		Ecoregions *struct {
+			MinPoints int  `json:"min_points"`
+			Clip      bool `json:"clip"`
+			Features  []struct {
+				ID      string          `json:"id"`
+				Polygon json.RawMessage `json:"polygon"`
+			} `json:"features"`
+		} `json:"ecoregions"`
 		RegionBuffers []float64 `json:"region_buffers"`
 		PointBuffers  []float64 `json:"point_buffers"`
 		HullBuffers   []float64 `json:"hull_buffers"`
@@ -56,6 +66,7 @@ type e2eStudy struct {
 		Extents []struct {
 			ID          string  `json:"id"`
 			Status      string  `json:"status"`
+			Params      string  `json:"params"`
 			Cells       int64   `json:"cells"`
 			AreaKm2     float64 `json:"area_km2"`
 			TrainPoints int     `json:"train_points"`
@@ -251,7 +262,17 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 	}
 	fmt.Fprintf(&yaml, "occurrences: occ.csv\nregion: region.geojson\nregion-buffers: %s\npoint-buffers: %s\nhull-buffers: %s\n", list(sp.RegionBuffers), list(sp.PointBuffers), list(append([]float64{0}, sp.HullBuffers...)))
 	fmt.Fprintf(&yaml, "e: %s\nthresholds: %s\niterations: %d\nseed: %d\nmembership-tif: true\nout: out\n", list(sp.E), list(sp.Thresholds), g.Iterations, g.Seed)
-	for name, body := range map[string]string{"occ.csv": occ.String(), "region.geojson": region, "study.yaml": yaml.String()} {
+	files := map[string]string{"occ.csv": occ.String(), "region.geojson": region}
+	if eco := sp.Ecoregions; eco != nil {
+		var units []string
+		for _, f := range eco.Features {
+			units = append(units, `{"type":"Feature","properties":{"unit":"`+f.ID+`"},"geometry":{"type":"Polygon","coordinates":`+string(f.Polygon)+`}}`)
+		}
+		files["eco.geojson"] = `{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:OGC:1.3:CRS84"}},"features":[` + strings.Join(units, ",") + `]}`
+		fmt.Fprintf(&yaml, "ecoregions: eco.geojson\necoregion-field: unit\necoregion-min-points: %d\necoregion-clip: %v\n", eco.MinPoints, eco.Clip)
+	}
+	files["study.yaml"] = yaml.String()
+	for name, body := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(body), 0o644); err != nil {
 			t.Fatal(err)
 		}
@@ -336,6 +357,15 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 		ge, ok := got[e.ID]
 		if !ok || band[e.ID] == nil {
 			t.Errorf("extent %s missing (extents %v)", e.ID, names)
+			continue
+		}
+		if e.Params != "" && ge.Params != e.Params {
+			t.Errorf("extent %s: params %q, want %q (OGR Contains and Intersects)", e.ID, ge.Params, e.Params)
+		}
+		if e.Status == "duplicate" || string(ge.Status) == "duplicate" {
+			if string(ge.Status) != e.Status {
+				t.Errorf("extent %s: status %s, want %s", e.ID, ge.Status, e.Status)
+			}
 			continue
 		}
 		want := make([]byte, len(band[e.ID]))

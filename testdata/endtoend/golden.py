@@ -19,7 +19,9 @@ from the documented rules WITHOUT areasweep:
                      shrunk 40 km (the cut at 180 is no boundary), points
                      written on both sides of the antimeridian (-180..180),
                      100 and 200 km discs around the training points, their hull
-                     (across 180) grown 50 km;
+                     (across 180) grown 50 km; ecoregion units in -180..180, one
+                     of them split at 180, one touching a selected unit only
+                     across 180;
             arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
                      Float32 model and a Byte model with heavy ties (floor 0,
                      nodata 255), region with a hole grown 30 km, 60 and 150 km
@@ -38,7 +40,9 @@ from the documented rules WITHOUT areasweep:
               point buffers from Geod.inv from each cell centre to every
               scored training point; hull buffers from Geod.inv to the
               hull's edges taken as ellipsoidal geodesics between its
-              vertices (Geod.npts every 100 m). areasweep
+              vertices (Geod.npts every 100 m); ecoregion units held (OGR
+              Contains of the training points) and touching (OGR
+              Intersects), placed where they meet the grid. areasweep
               densifies the boundary every cell side (README), which can
               overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
               cells inside the buffer by less than that are "ambiguous",
@@ -152,6 +156,16 @@ STUDIES = [
             [[[-180.0, -12.017], [-175.523, -12.531], [-176.037, -17.011], [-180.0, -17.523], [-180.0, -12.017]]],
         ]),
         region_buffers=[-40, 25], point_buffers=[100, 200], hull_buffers=[50], e=[0.05, 0.1], thresholds=[0.3], train=20, test=40,
+        # Units in two rows of six columns, written in -180..180; c3r1
+        # and c4r1 form one unit split at 180 ("split"); a gap separates
+        # columns 4 and 5, so c4r2 meets a selected unit (c3r2) only
+        # across 180.
+        ecoregions=dict(crs="CRS84", min_points=3, clip=True, features=[
+            dict(id=f"c{c}r{r}" if r == 2 or c not in (3, 4) else "split", polygon=[[
+                [x0, y0], [x1, y0], [x1, y1], [x0, y1], [x0, y0]]])
+            for c, (x0, x1) in enumerate([(171.013, 175.513), (175.513, 178.017), (178.017, 180.0),
+                                          (-180.0, -178.023), (-177.5, -174.531), (-174.531, -171.017)], 1)
+            for r, (y0, y1) in enumerate([(-10.517, -14.513), (-14.513, -19.487)], 1)]),
     ),
     dict(
         name="arctic", crs="EPSG:4326", width=300, height=200,
@@ -288,15 +302,16 @@ def cell_areas_km2(spec):
     return out
 
 
-def region_geoms(spec):
-    """The region's polygons as OGR geometries in the grid CRS; on
-    latitude-longitude grids each polygon moved by whole turns into the
-    grid's longitude range (README: Antimeridian)."""
+def region_geoms(spec, layer=None):
+    """The polygons of layer (default: the region) as OGR geometries in
+    the grid CRS; on latitude-longitude grids each polygon moved by whole
+    turns into the grid's longitude range (README: Antimeridian)."""
+    layer = layer or spec["region"]
     src = osr.SpatialReference()
-    if spec["region"]["crs"] == "CRS84":
+    if layer["crs"] == "CRS84":
         src.ImportFromEPSG(4326)
     else:
-        src.ImportFromEPSG(int(spec["region"]["crs"].split(":")[1]))
+        src.ImportFromEPSG(int(layer["crs"].split(":")[1]))
     src.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
     dst = osr.SpatialReference()
     dst.ImportFromEPSG(int(spec["crs"].split(":")[1]))
@@ -305,7 +320,7 @@ def region_geoms(spec):
     west = spec["gt"][0]
     east = west + spec["width"] * spec["gt"][1]
     geoms = []
-    for poly in spec["region"]["features"]:
+    for poly in layer["features"]:
         rings = [np.array(r, float) for r in poly]
         if spec["crs"] == "EPSG:4326":
             lo, hi = rings[0][:, 0].min(), rings[0][:, 0].max()
@@ -319,7 +334,7 @@ def region_geoms(spec):
             for x, y in r:
                 ring.AddPoint_2D(float(x), float(y))
             g.AddGeometry(ring)
-        if spec["crs"] != "EPSG:4326" and spec["region"]["crs"] != spec["crs"]:
+        if spec["crs"] != "EPSG:4326" and layer["crs"] != spec["crs"]:
             g.Transform(ct)
         geoms.append(g)
     return geoms
@@ -733,6 +748,41 @@ def study(spec):
             half = side / 2
             amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3) & ~hm[near]]
             extents.append((f"hull_{d:g}km", (hm | within) & valid, sorted(int(a) for a in amb)))
+    params = {}
+    if spec.get("ecoregions"):
+        # README: units grouped by id; those holding at least k training
+        # points (OGR Contains of the points, grid CRS), then every other
+        # unit that touches or overlaps them (OGR Intersects), the units
+        # placed where they meet the grid as every polygon is; both
+        # clipped to the base with --ecoregion-clip.
+        eco, k = spec["ecoregions"], spec["ecoregions"]["min_points"]
+        order, parts = [], {}
+        for f in eco["features"]:
+            if f["id"] not in parts:
+                order.append(f["id"])
+            parts.setdefault(f["id"], []).extend(region_geoms(spec, {"crs": eco["crs"], "features": [f["polygon"]]}))
+        tx, ty = from_lonlat(spec, tlon, tlat)
+        pts = []
+        for x, y in zip(tx, ty):
+            pt = ogr.Geometry(ogr.wkbPoint)
+            pt.AddPoint_2D(float(x), float(y))
+            pts.append(pt)
+        sel = [u for u in order if sum(any(g.Contains(pt) for g in parts[u]) for pt in pts) >= k]
+        union = ogr.Geometry(ogr.wkbMultiPolygon)
+        for u in sel:
+            for g in parts[u]:
+                union = union.Union(g)
+        touch = [u for u in order if u not in sel and any(g.Intersects(union) for g in parts[u])]
+        ms = rasterize(spec, [g for u in sel for g in parts[u]]) & valid
+        mt = rasterize(spec, [g for u in sel + touch for g in parts[u]]) & valid
+        name = f"ecoregions_k{k}"
+        params[name] = f"min_points={k}; units={','.join(sel)}"
+        params[name + "_touching"] = f"min_points={k}; plus touching units={','.join(touch)}"
+        extents += [(name, ms, []), (name + "_touching", mt, [])]
+        if eco.get("clip"):
+            params[name + "_clipped"] = params[name] + "; clipped to base"
+            params[name + "_touching_clipped"] = params[name + "_touching"] + "; clipped to base"
+            extents += [(name + "_clipped", ms & base, []), (name + "_touching_clipped", mt & base, [])]
     extents.append(("whole_raster", valid.copy(), []))
     ext_out = []
     status = {}
@@ -743,7 +793,7 @@ def study(spec):
                 st = "duplicate"
         status[eid] = st
         ext_out.append({
-            "id": eid, "status": st, "cells": int(mask.sum()), "area_km2": float(area[mask].sum()),
+            "id": eid, "status": st, "params": params.get(eid, ""), "cells": int(mask.sum()), "area_km2": float(area[mask].sum()),
             "train_points": int(sum(mask[c] for c in train_cells)),
             "test_points": int(sum(mask[c] for c in test_cells)),
             "ambiguous_cells": amb,
@@ -821,6 +871,8 @@ def study(spec):
                             key=lambda i: float(i[7:-2])) + ["whole_raster"],
         "points": sorted([i for i in ids if i.startswith("points_")], key=lambda i: float(i[7:-2])),
         "hull": ["hull"] + sorted([i for i in ids if i.startswith("hull_")], key=lambda i: float(i[5:-2])),
+        "ecoregions": [i for i in ids if i.startswith("ecoregions_") and not i.endswith("_clipped")],
+        "ecoregions_clipped": [i for i in ids if i.startswith("ecoregions_") and i.endswith("_clipped")],
     }
     rings = []
     for chain, members in chains.items():
