@@ -16,7 +16,7 @@ import (
 )
 
 // e2eGolden is testdata/endtoend/golden.json, written by golden.py there:
-// four small studies on unusual grids and the values areasweep must
+// five small studies on unusual grids and the values areasweep must
 // report, computed from the documented rules with GDAL, pyproj,
 // scikit-learn and SciPy, without areasweep.
 type e2eGolden struct {
@@ -280,10 +280,11 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 	return filepath.Join(dir, "study.yaml")
 }
 
-// TestEndToEndGolden runs areasweep on the four studies of
+// TestEndToEndGolden runs areasweep on the five studies of
 // testdata/endtoend/golden.json (UTM with a scaled Int16 model, EPSG:3035
 // with a holed region and region buffers, a latitude-longitude grid across
-// the antimeridian, a high-latitude grid with a Byte model full of ties)
+// the antimeridian, a high-latitude grid with a Byte model full of ties,
+// a grid reaching the North Pole with a polar cap as region)
 // and compares what it reports with the values computed there from the
 // documented rules, without areasweep: membership, areas, the points'
 // cells, every model's scores and the distance-only null's (Boyce aside)
@@ -306,8 +307,8 @@ func TestEndToEndGolden(t *testing.T) {
 	if err := json.Unmarshal(b, &g); err != nil {
 		t.Fatal(err)
 	}
-	if len(g.Studies) != 4 {
-		t.Fatalf("golden.json has %d studies, want 4", len(g.Studies))
+	if len(g.Studies) != 5 {
+		t.Fatalf("golden.json has %d studies, want 5", len(g.Studies))
 	}
 	for i := range g.Studies {
 		st := &g.Studies[i]

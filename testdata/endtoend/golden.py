@@ -22,6 +22,10 @@ from the documented rules WITHOUT areasweep:
                      (across 180) grown 50 km; ecoregion units in -180..180, one
                      of them split at 180, one touching a selected unit only
                      across 180;
+            polar    latitude-longitude grid 75..90 N up to the pole, the
+                     region a polar cap written as the box -180..180,
+                     84.013..90, grown 40 km and shrunk 35 km, disc and
+                     hull buffers;
             arctic   latitude-longitude grid 60..80 N (cell areas vary by row),
                      Float32 model and a Byte model with heavy ties (floor 0,
                      nodata 255), region with a hole grown 30 km, 60 and 150 km
@@ -182,6 +186,19 @@ STUDIES = [
         region_buffers=[30], point_buffers=[60, 150], hull_buffers=[40], e=[0.05, 0.1, 0.3], thresholds=[1.0, 2.0, 3.0], train=24, test=40,
     ),
 ]
+STUDIES.append(dict(
+    # A grid reaching the North Pole; the region is the cap north of
+    # 84.013 degrees written as the box -180..180 (README: a whole-turn
+    # edge runs along the parallel; the pole line is a cut).
+    name="polar", crs="EPSG:4326", width=400, height=150,
+    gt=[0.0, 0.1, 0.0, 90.0, 0.0, -0.1],
+    models=[bump("f32", "Float32", 60, 200, 4, 1, 8, 3000, 0, 120, div=1024, nodata=-9999.0,
+                 nodata_box=[140, 150, 0, 20])],
+    region=dict(crs="CRS84", features=[[[[-180.0, 84.013], [180.0, 84.013], [180.0, 90.0], [-180.0, 90.0],
+                                         [-180.0, 84.013]]]]),
+    region_buffers=[-35, 40], point_buffers=[80], hull_buffers=[25], e=[0.05, 0.1], thresholds=[1.0],
+    train=20, test=30,
+))
 ITERATIONS, SEED = 10, 11
 
 # ---------------------------------------------------------------- inputs
@@ -382,8 +399,9 @@ def plane(spec):
 def boundary_points(spec, geoms):
     """The region's boundary in the grid CRS, its edges straight there and
     densified every 50 m (0.0005 degrees on latitude-longitude grids).
-    Edges along the antimeridian are cuts, not boundary (README: a region
-    stored as two polygons split at 180 degrees is buffered as one)."""
+    Edges along the antimeridian or a pole line are cuts, not boundary
+    (README: a region stored as two polygons split at 180 degrees, or a
+    polar cap, is buffered as the one region it is)."""
     geographic = spec["crs"] == "EPSG:4326"
     step = 0.0005 if geographic else 50.0
     pts = []
@@ -393,7 +411,12 @@ def boundary_points(spec, geoms):
             for a, b in zip(ring[:-1], ring[1:]):
                 if geographic and a[0] == b[0] and (a[0] - 180) % 360 == 0:
                     continue
-                n = max(1, int(math.ceil(math.hypot(*(b - a)) / step)))
+                if geographic and a[1] == b[1] and abs(a[1]) == 90:
+                    continue  # the pole line of a polar cap
+                # About 50 m apart: on latitude-longitude grids a degree of
+                # longitude shrinks with the cosine of the latitude.
+                shrink = math.cos(math.radians(max(abs(a[1]), abs(b[1])))) if geographic else 1.0
+                n = max(1, int(math.ceil(math.hypot((b[0] - a[0]) * shrink, b[1] - a[1]) / step)))
                 f = np.arange(n)[:, None] / n
                 pts.append(a + f * (b - a))
     return np.vstack(pts)
