@@ -650,8 +650,12 @@ def boyce(bg, w, test, layout, width=0.1, steps=100):
         if e > 1e-12:
             mids.append(lo + wd / 2)
             fs.append(p / e)
-    # One list per quantity, in window order.
-    out = {k: [float(x[i]) for x in windows] for i, k in enumerate(["mid", "p", "e_lo", "e_hi"])}
+    # One list per quantity, in window order: the test presences in the
+    # window, and the bounds on its share of area to 12 significant digits
+    # (the check allows 1e-9); the midpoints follow from min and max.
+    out = {"min": float(mn), "max": float(mx), "n": len(test),
+           "p_count": [int(round(x[1] * len(test))) for x in windows],
+           "e_lo": [float(f"{x[2]:.12g}") for x in windows], "e_hi": [float(f"{x[3]:.12g}") for x in windows]}
     out["defined"] = len(fs) >= 3 and len(set(fs)) >= 2
     out["exact"] = bool(np.isin(np.unique(bg), layout).all())
     if out["defined"]:
