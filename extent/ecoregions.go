@@ -5,6 +5,9 @@ import (
 	"math"
 
 	"github.com/airbusgeo/godal"
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/encoding/wkb"
+	"github.com/paulmach/orb/project"
 
 	"areasweep/extent/gdalmsg"
 	"areasweep/extent/vocab"
@@ -55,16 +58,35 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		b.f.Warnings = append(b.f.Warnings, fmt.Sprintf("no unit of %s holds %d or more training points; no ecoregion extents", spec.Ecoregions, k))
 		return nil
 	}
+	// On a latitude-longitude grid the units keep their longitudes as
+	// written for this test, while each is filled where it meets the grid
+	// (moved by whole turns): units on either side of 180 degrees, written
+	// in -180..180, meet only one turn apart. The selection is also tried
+	// one turn west and east.
+	sels := []*godal.Geometry{sel}
+	if b.g.Geographic {
+		for _, d := range []float64{-360, 360} {
+			moved, err := shiftLon(sel, d, b.g.srs)
+			if err != nil {
+				return fmt.Errorf("extent: %s: the selected units cannot be moved by %g degrees (%s)", spec.Ecoregions, d, gdalmsg.Cause(err.Error()))
+			}
+			defer moved.Close()
+			sels = append(sels, moved)
+		}
+	}
 	for i := range units {
 		if counts[i] >= k {
 			continue
 		}
-		hit, err := units[i].geom.Intersects(sel)
-		if err != nil {
-			return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
-		}
-		if hit {
-			touching = append(touching, i)
+		for _, s := range sels {
+			hit, err := units[i].geom.Intersects(s)
+			if err != nil {
+				return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
+			}
+			if hit {
+				touching = append(touching, i)
+				break
+			}
 		}
 	}
 	ids := func(ix []int) string {
@@ -116,4 +138,21 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		}
 	}
 	return nil
+}
+
+// shiftLon returns a copy of g with every longitude moved by dlon degrees.
+func shiftLon(g *godal.Geometry, dlon float64, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	b, err := g.WKB()
+	if err != nil {
+		return nil, err
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return nil, err
+	}
+	moved := project.Geometry(og, func(p orb.Point) orb.Point { return orb.Point{p[0] + dlon, p[1]} })
+	if b, err = wkb.Marshal(moved); err != nil {
+		return nil, err
+	}
+	return godal.NewGeometryFromWKB(b, srs)
 }

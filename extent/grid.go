@@ -89,6 +89,11 @@ type Grid struct {
 	blockFactor []float64
 	factorStep  int
 	factorW     int
+	// colSeg and colT hold, when blocks hold several cells, each column's
+	// pair of blocks (colSeg, colSeg+1) whose centres bracket it and its
+	// position t between them (factorBracket).
+	colSeg []int32
+	colT   []float64
 
 	toLL  *transforms // grid CRS -> WGS84 lon/lat
 	frLL  *transforms // WGS84 lon/lat -> grid CRS
@@ -312,12 +317,17 @@ func (g *Grid) MinCellSideM() float64 {
 		xs := []float64{x0, x0 + gt[1], x0}
 		ys := []float64{y0 + gt[5]/2, y0 + gt[5]/2, y0 + gt[5]}
 		if g.Geographic {
-			// East-west along the cell's poleward edge, the shorter one.
-			ys[0], ys[1] = y0, y0
-			if math.Abs(y0+gt[5]) > math.Abs(y0) {
-				ys[0], ys[1] = y0+gt[5], y0+gt[5]
+			// East-west along the cell's poleward edge, the shorter one;
+			// north-south from that edge to the other one. (Point 2 was
+			// the south edge whatever the hemisphere, which in the
+			// southern one is the poleward edge itself: a side of 0, and
+			// no densification of the hull's edges.)
+			top, bot := math.Max(-90, math.Min(90, y0)), math.Max(-90, math.Min(90, y0+gt[5]))
+			pole, other := top, bot
+			if math.Abs(bot) > math.Abs(top) {
+				pole, other = bot, top
 			}
-			ys[0], ys[1] = math.Max(-90, math.Min(90, ys[0])), math.Max(-90, math.Min(90, ys[1]))
+			ys[0], ys[1], ys[2] = pole, pole, other
 		}
 		lons := make([]float64, 3)
 		lats := make([]float64, 3)
@@ -481,9 +491,12 @@ func (g *Grid) RowLonLat(row int, lons, lats []float64) {
 // ellipsoid of the quadrangle between the cell's bounding parallels and
 // meridians (geodesy.CellArea). For equal-area projections it is the planar
 // cell area. For other projections it is the planar area times the ratio of
-// true to planar area of the block of cells holding the cell, where the
-// true area of a block comes from the ellipsoidal area of its outline
-// (densified along the block edges) after transforming to WGS84.
+// true to planar area of the cell's block of cells, where the true area of
+// a block comes from the ellipsoidal area of its outline (densified along
+// the block edges) after transforming to WGS84; on grids of more than about
+// a million cells, whose blocks hold several cells, the ratio is
+// interpolated bilinearly between the centres of the blocks around the
+// cell.
 func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 	return g.RowAreasRange(row, 0, g.Width, dst)
 }
@@ -524,11 +537,70 @@ func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 		}
 		return dst
 	}
-	br := row / g.factorStep
-	for i := range dst {
-		dst[i] = planar * g.blockFactor[br*g.factorW+(c0+i)/g.factorStep]
+	if g.factorStep == 1 {
+		// One block per cell: its own true/planar ratio.
+		for i := range dst {
+			dst[i] = planar * g.blockFactor[row*g.factorW+c0+i]
+		}
+		return dst
+	}
+	// Blocks of several cells: the ratio interpolated bilinearly between
+	// the blocks' centres (linearly extrapolated in the outer half of the
+	// edge blocks). A block's ratio is its mean, which equals the value at
+	// its centre where the ratio varies linearly, so the interpolation
+	// follows the ratio's change across a block (first order) where one
+	// ratio per block would not: on a Web Mercator grid of 30 km cells in
+	// blocks of 2x2 cells the worst cell was 0.47% off with one ratio per
+	// block, 0.0045% with the interpolation (TestBlockAreas).
+	step, n := g.factorStep, g.factorW
+	fh := len(g.blockFactor) / n
+	j0, j1, tv := factorBracket(float64(row)+0.5, step, fh, g.Height)
+	f0 := g.blockFactor[j0*n : (j0+1)*n]
+	f1 := g.blockFactor[j1*n : (j1+1)*n]
+	// Each cell's column bracket (colSeg, colT) is fixed per grid, and the
+	// interpolation f = p + t q is evaluated the same way whatever range
+	// [c0, c1) is asked, so a cell's area does not depend on the call.
+	seg, p, q := int32(-1), 0.0, 0.0
+	for c := c0; c < c1; c++ {
+		if k := g.colSeg[c]; k != seg {
+			seg = k
+			i0, i1 := int(k), min(int(k)+1, n-1)
+			// a(t), b(t): the two block rows' ratios interpolated at t;
+			// f(t) = a(t) + tv (b(t) - a(t)) = p + t q.
+			p = f0[i0] + tv*(f1[i0]-f0[i0])
+			q = (f0[i1] - f0[i0]) + tv*((f1[i1]-f1[i0])-(f0[i1]-f0[i0]))
+		}
+		f := p + g.colT[c]*q
+		if !(f > 0) || math.IsInf(f, 0) {
+			f = g.blockFactor[(row/step)*n+c/step]
+		}
+		dst[c-c0] = planar * f
 	}
 	return dst
+}
+
+// blockCentre returns the centre, in cells, of block k of step cells along
+// an axis of size cells (the last block may be shorter).
+func blockCentre(k, step, size int) float64 {
+	return float64(k*step+min((k+1)*step, size)) / 2
+}
+
+// factorBracket returns the two blocks (of n blocks of step cells along
+// an axis of size cells; the last one may be shorter) whose centres
+// bracket coordinate x (in cells), and x's position between those centres
+// (0 at the first, 1 at the second; outside [0, 1] in the outer half of
+// the edge blocks). With one block, both are block 0 and t is 0.
+func factorBracket(x float64, step, n, size int) (k0, k1 int, t float64) {
+	if n < 2 {
+		return 0, 0, 0
+	}
+	k0 = min(int(x)/step, n-1)
+	if x < blockCentre(k0, step, size) {
+		k0--
+	}
+	k0 = max(0, min(k0, n-2))
+	m0, m1 := blockCentre(k0, step, size), blockCentre(k0+1, step, size)
+	return k0, k0 + 1, (x - m0) / (m1 - m0)
 }
 
 // computeFactors fills blockFactor for projected grids that are not
@@ -580,6 +652,15 @@ func (g *Grid) computeFactors() error {
 		}
 	}
 	g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)
+	if step > 1 {
+		g.colSeg = make([]int32, g.Width)
+		g.colT = make([]float64, g.Width)
+		for c := range g.colSeg {
+			k0, _, t := factorBracket(float64(c)+0.5, step, g.factorW, g.Width)
+			g.colSeg[c], g.colT[c] = int32(k0), t
+		}
+		g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid), interpolated bilinearly between block centres", step, step)
+	}
 	return nil
 }
 

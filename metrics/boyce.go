@@ -24,12 +24,22 @@ import (
 //
 // Approximation: E_i is read from the extent's fine histogram (Accumulator:
 // equal bins of width 2^e on a dyadic grid, at least (HistBins-1)/2 of them
-// across [min, max], fixed by the extent's own cells), taking each bin's
-// area as spread uniformly over the bin's interval clipped to [min, max],
-// and counting the overlapping part of partial bins (linear interpolation).
-// A bin whose clipped interval is a single point counts wholly when the
-// point lies in the window. Only the bins that a window cuts contribute an
-// error, so E_i is exact when window ends fall on bin edges. P_i is exact.
+// across [min, max], fixed by the extent's own cells) and its exact bins.
+// The area exactly at each layout value (every presence value and fixed
+// threshold: an exact bin of the Layout) is a point mass, counted wholly
+// by the windows that hold the value, as P_i counts the presences there,
+// and taken out of the histogram bin that holds the value. The rest of
+// each bin's area is taken as spread uniformly over the bin's interval
+// clipped to [min, max], counting the overlapping part of partial bins
+// (linear interpolation). A bin whose clipped interval is a single point
+// counts wholly when the point lies in the window. Only the spread area of
+// the bins that a window cuts contributes an error, so E_i is exact when
+// window ends fall on bin edges, and for every window when each value of
+// the extent's cells is a layout value (a model with few values, such as
+// a Byte raster, whose values all hold presences). P_i is exact. Without
+// the point masses a window ending on a value held by presences would
+// count those presences in P_i but only a sliver (or all) of the value's
+// area in E_i, depending on the rounding of the window's end.
 //
 // Index is 0 and Defined false, with Reason saying why, when fewer than 3
 // windows are used or F or the midpoints do not vary. Mid and Ratio list the
@@ -83,12 +93,13 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 		e0[k], e1[k] = lo, hi
 	}
 	total := float64(a.area)
+	spread, pv, pcum := a.pointMasses(i0, nb)
 	// whole[k] is bin k's term when a window holds all of its interval
 	// (ov below is then e1[k] - e0[k], the same operands): computed once
 	// per bin instead of once per window holding it (about ten).
 	whole := make([]float64, nb)
 	for k := range nb {
-		if ar := a.hist[i0+k].area; ar != 0 && e1[k] > e0[k] {
+		if ar := spread[k]; ar != 0 && e1[k] > e0[k] {
 			whole[k] = float64(ar) * (e1[k] - e0[k]) / (e1[k] - e0[k])
 		}
 	}
@@ -100,7 +111,7 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 		k0 := max(0, int(gridBin(lo, a.he)-a.hbase)-i0-1)
 		k1 := min(nb-1, int(gridBin(hi, a.he)-a.hbase)-i0+1)
 		for k := k0; k <= k1; k++ {
-			ar := a.hist[i0+k].area
+			ar := spread[k]
 			if ar == 0 {
 				continue
 			}
@@ -117,7 +128,7 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 				s += float64(ar)
 			}
 		}
-		return s
+		return s + pointArea(pv, pcum, lo, hi)
 	}
 
 	var step float64
@@ -138,6 +149,49 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 		out = append(out, boyceWindow{lo: lo, hi: hi, mid: lo + w/2, share: e})
 	}
 	return out
+}
+
+// pointMasses splits the histogram bins i0..i0+nb-1 of a: spread[k] is
+// bin i0+k's area less the area exactly at the layout values it holds;
+// pv are those values with area, ascending, and pcum their cumulative
+// areas (pcum[0] = 0, pcum[j+1] = pcum[j] + area at pv[j]). Every cell at a
+// layout value lies in that value's histogram bin; a bin that would go
+// negative (which the accumulator's invariants rule out) keeps its area
+// spread.
+func (a *Accumulator) pointMasses(i0, nb int) (spread []int64, pv []float64, pcum []int64) {
+	spread = make([]int64, nb)
+	for k := range nb {
+		spread[k] = a.hist[i0+k].area
+	}
+	pcum = []int64{0}
+	for j, v := range a.layout.d {
+		m := a.bins[2*j+1].area
+		if m <= 0 {
+			continue
+		}
+		if v == 0 {
+			v = 0 // cells at -0 and +0 are added as +0
+		}
+		k := int(gridBin(v, a.he)-a.hbase) - i0
+		if k < 0 || k >= nb || spread[k] < m {
+			continue
+		}
+		spread[k] -= m
+		pv = append(pv, v)
+		pcum = append(pcum, pcum[len(pcum)-1]+m)
+	}
+	return spread, pv, pcum
+}
+
+// pointArea returns the area of the point masses pv (cumulative areas
+// pcum, see pointMasses) that lie in [lo, hi].
+func pointArea(pv []float64, pcum []int64, lo, hi float64) float64 {
+	i := sort.SearchFloat64s(pv, lo)
+	j := sort.Search(len(pv), func(k int) bool { return pv[k] > hi })
+	if j <= i {
+		return 0
+	}
+	return float64(pcum[j] - pcum[i])
 }
 
 // boyce computes the continuous Boyce index; sortedTest is ascending.

@@ -8,7 +8,8 @@ import (
 
 // boyceWindowsReference is boyceWindows as it was written before the
 // terms of bins a window holds whole were computed once per bin: every
-// bin's term computed again for each window.
+// bin's term computed again for each window (with the same point masses,
+// summed here value by value).
 func boyceWindowsReference(a *Accumulator, width float64, steps int) []boyceWindow {
 	mn, mx := a.min, a.max
 	span := mx - mn
@@ -29,12 +30,19 @@ func boyceWindowsReference(a *Accumulator, width float64, steps int) []boyceWind
 		e0[k], e1[k] = lo, hi
 	}
 	total := float64(a.area)
+	spread, pv, pcum := a.pointMasses(i0, nb)
 	areaIn := func(lo, hi float64) float64 {
 		var s float64
 		k0 := max(0, int(gridBin(lo, a.he)-a.hbase)-i0-1)
 		k1 := min(nb-1, int(gridBin(hi, a.he)-a.hbase)-i0+1)
+		var pm int64
+		for j, v := range pv {
+			if v >= lo && v <= hi {
+				pm += pcum[j+1] - pcum[j]
+			}
+		}
 		for k := k0; k <= k1; k++ {
-			ar := a.hist[i0+k].area
+			ar := spread[k]
 			if ar == 0 {
 				continue
 			}
@@ -47,7 +55,7 @@ func boyceWindowsReference(a *Accumulator, width float64, steps int) []boyceWind
 				s += float64(ar)
 			}
 		}
-		return s
+		return s + float64(pm)
 	}
 	var step float64
 	if steps > 1 {
@@ -76,14 +84,15 @@ func boyceWindowsReference(a *Accumulator, width float64, steps int) []boyceWind
 func TestBoyceWindowsSameAsReference(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 9))
 	for c := 0; c < 300; c++ {
-		pres := []float64{0.5}
+		scale := math.Ldexp(1, rng.IntN(40)-20)
+		off := (rng.Float64() - 0.5) * 4 * scale
+		// Two of the tied values are layout values: point masses.
+		pres := []float64{0.5, off + scale*2, off + scale*float64(rng.IntN(7))}
 		lay, err := NewLayout(pres, []int{16, 64, 1024}[c%3])
 		if err != nil {
 			t.Fatal(err)
 		}
 		acc := lay.NewAccumulator()
-		scale := math.Ldexp(1, rng.IntN(40)-20)
-		off := (rng.Float64() - 0.5) * 4 * scale
 		cells := 1 + rng.IntN(3000)
 		for k := 0; k < cells; k++ {
 			v := off + scale*rng.NormFloat64()
@@ -102,6 +111,78 @@ func TestBoyceWindowsSameAsReference(t *testing.T) {
 			if math.Float64bits(got[i].share) != math.Float64bits(want[i].share) || got[i] != want[i] {
 				t.Fatalf("case %d window %d: %+v, reference %+v", c, i, got[i], want[i])
 			}
+		}
+	}
+}
+
+// TestBoyceWindowEndOnValue: on a background of a few integer values, all
+// held by presences (a Byte model), every window's area is exact even
+// where the window's end falls on a value, within rounding: with span 6,
+// width 0.1 and 100 steps, window 44 is [2.4000000000000004,
+// 3.0000000000000004] and holds the value 3, window 55 starts just above
+// it. Reading the value's area from its histogram bin [3, 3+2^-9) instead
+// gave window 44 no area (so it was dropped, though P counts the
+// presences at 3) and window 55 the whole of it (P/E = 0).
+func TestBoyceWindowEndOnValue(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	var bg []float64
+	var w []int64
+	for i := 0; i < 5000; i++ {
+		bg = append(bg, float64(r.IntN(7)))
+		w = append(w, 1+r.Int64N(1000))
+	}
+	test := []float64{0, 0, 1, 2, 3, 3, 3, 4, 5, 5, 6, 6, 6, 6}
+	l, err := NewLayout(test, 4096)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := l.NewAccumulator()
+	var tot float64
+	for i, v := range bg {
+		a.Add(v, w[i])
+		tot += float64(w[i])
+	}
+	s := Settings{E: []float64{0.05}, Iterations: 1, BoyceWidth: 0.1, BoyceSteps: 100}
+	sc, err := Score(a, nil, test, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := sc.Boyce
+	// Brute force: the same window ends, exact areas and counts.
+	span := 6.0
+	wd := 0.1 * span
+	step := (span - wd) / 99
+	var mids, ratios []float64
+	for i := 0; i < 100; i++ {
+		lo := float64(i) * step
+		hi := lo + wd
+		if i == 99 {
+			hi = 6
+		}
+		var e float64
+		for j, v := range bg {
+			if v >= lo && v <= hi {
+				e += float64(w[j])
+			}
+		}
+		if e == 0 {
+			continue
+		}
+		p := 0
+		for _, v := range test {
+			if v >= lo && v <= hi {
+				p++
+			}
+		}
+		mids = append(mids, lo+wd/2)
+		ratios = append(ratios, float64(p)/float64(len(test))/(e/tot))
+	}
+	if len(b.Mid) != len(mids) {
+		t.Fatalf("%d windows used, brute force %d", len(b.Mid), len(mids))
+	}
+	for i := range mids {
+		if b.Mid[i] != mids[i] || !near(b.Ratio[i], ratios[i], 1e-12) {
+			t.Errorf("window %d: mid %v P/E %v, brute force %v %v", i, b.Mid[i], b.Ratio[i], mids[i], ratios[i])
 		}
 	}
 }

@@ -1,0 +1,37 @@
+package extent
+
+import (
+	"strings"
+	"testing"
+)
+
+// TestEcoregionTouchingAcrossAntimeridian: on a grid running 170..190
+// degrees east, unit W (177..180 E, holding the training points) and unit
+// E (180..181 E written as -180..-179) share the meridian of 180 degrees,
+// as unit S (174..177 E) shares W's west edge; unit F (171..173 E) touches
+// neither. E and S are the touching units: with the units' longitudes as
+// written, E used to be missed.
+func TestEcoregionTouchingAcrossAntimeridian(t *testing.T) {
+	dir := t.TempDir()
+	rect := func(x0, x1, y0, y1 float64) [][2]float64 {
+		return [][2]float64{{x0, y0}, {x1, y0}, {x1, y1}, {x0, y1}, {x0, y0}}
+	}
+	units := writeGeoJSON(t, dir, "units.geojson", []string{"W", "E", "S", "F"},
+		[][][2]float64{rect(177, 180, -17, -11), rect(-180, -179, -12, -11), rect(174, 177, -17, -15), rect(171, 173, -13, -11)})
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{rect(175, 185, -18, -12)})
+	g, v := geoGrid(t, 170, -10, 0.1, 200, 100)
+	train := []LonLat{{178, -14}, {179.5, -16}, {177.5, -12}}
+	f, err := Build(g, v, Spec{Region: region, Train: train, Ecoregions: units, EcoregionField: "id", EcoregionMinPoints: 1}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := f.Members[memberIdx(t, f, "ecoregions_k1_touching")]
+	if !strings.HasSuffix(m.Params, "plus touching units=E,S") {
+		t.Errorf("touching member %q, want the units E and S added", m.Params)
+	}
+	// W is 30 x 60 cells, E 10 x 10 and S 30 x 20 (cell centres strictly
+	// inside: no edge falls on a centre).
+	if m.Cells != 1800+100+600 {
+		t.Errorf("touching member has %d cells, want %d (W, E and S)", m.Cells, 1800+100+600)
+	}
+}

@@ -1,0 +1,80 @@
+package extent
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"areasweep/extent/geodesy"
+)
+
+// cellTrueAreaKm2 is the true area of cell (c, r) of a projected grid: the
+// WGS84 area (geodesy.PolygonArea, PROJ's geodesic polygon area, Karney
+// 2013) of its outline densified 16 points per side and transformed to
+// longitude/latitude.
+func cellTrueAreaKm2(g *Grid, c, r int) float64 {
+	gt := g.GeoTransform
+	const k = 16
+	x0, x1 := gt[0]+float64(c)*gt[1], gt[0]+float64(c+1)*gt[1]
+	y0, y1 := gt[3]+float64(r)*gt[5], gt[3]+float64(r+1)*gt[5]
+	var xs, ys []float64
+	for i := 0; i < 4*k; i++ {
+		f := float64(i%k) / k
+		switch i / k {
+		case 0:
+			xs, ys = append(xs, x0+f*(x1-x0)), append(ys, y1)
+		case 1:
+			xs, ys = append(xs, x1), append(ys, y1+f*(y0-y1))
+		case 2:
+			xs, ys = append(xs, x1-f*(x1-x0)), append(ys, y0)
+		default:
+			xs, ys = append(xs, x0), append(ys, y0-f*(y0-y1))
+		}
+	}
+	lons := make([]float64, len(xs))
+	lats := make([]float64, len(xs))
+	g.ToLonLat(xs, ys, lons, lats)
+	a, _ := geodesy.PolygonArea(lats, lons)
+	return math.Abs(a) / 1e6
+}
+
+// TestBlockAreas checks the cell areas of a Web Mercator grid too large
+// for one area ratio per cell (1200 x 1200 cells of 30 km, to 84 degrees
+// of latitude: blocks of 2 x 2 cells) against each cell's true area, and
+// that a cell's area does not depend on the range of cells asked for. With
+// one ratio per block the worst of 3,000 random cells was 0.47% off (the
+// ratio changes by about 2% across a block at high latitudes); with the
+// ratio interpolated between block centres, 0.0045%.
+func TestBlockAreas(t *testing.T) {
+	g, err := NewGrid(1200, 1200, [6]float64{-18000000, 30000, 0, 18000000, 0, -30000}, "EPSG:3857")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	if g.factorStep != 2 {
+		t.Fatalf("block side %d cells, want 2", g.factorStep)
+	}
+	r := rand.New(rand.NewPCG(1, 2))
+	worst := 0.0
+	for i := 0; i < 3000; i++ {
+		c, row := r.IntN(g.Width), r.IntN(g.Height)
+		got := g.RowAreasRange(row, c, c+1, nil)[0]
+		want := cellTrueAreaKm2(g, c, row)
+		worst = math.Max(worst, math.Abs(got-want)/want)
+	}
+	if worst > 1e-4 {
+		t.Errorf("worst cell area %.3g relative off its true area, want at most 1e-4", worst)
+	}
+	full := make([]float64, g.Width)
+	for k := 0; k < 300; k++ {
+		row := r.IntN(g.Height)
+		full = g.RowAreasRange(row, 0, g.Width, full)
+		c0 := r.IntN(g.Width)
+		c1 := c0 + 1 + r.IntN(g.Width-c0)
+		for i, v := range g.RowAreasRange(row, c0, c1, nil) {
+			if v != full[c0+i] {
+				t.Fatalf("row %d cell %d: %v asked in [%d,%d), %v in the whole row", row, c0+i, v, c0, c1, full[c0+i])
+			}
+		}
+	}
+}
