@@ -45,7 +45,7 @@
 #   - rewritten on branch h7 (the analysis' sentences stored in
 #     results.json, under sensitivity, reworded so that each holds for the
 #     numbers it quotes, and the headline's area range rounded to three
-#     significant digits as the tables are; no number changed).
+#     significant digits as the tables are; no number changed);
 #   - rewritten on branch h5 (the Boyce index counts the area exactly at
 #     each presence value and fixed threshold as a point mass in the
 #     windows that hold the value, instead of spreading it over its
@@ -60,7 +60,9 @@
 #     1,025,557 km2, which an independent computation with pyproj Geod
 #     confirms to within one cell on the buffer's edge; its scores and
 #     what derives from them moved, good's AUC there from 0.7685 to
-#     0.7996; every other extent is unchanged).
+#     0.7996; every other extent is unchanged);
+#   - rewritten after merging h5 and h7 into main: both changes together,
+#     nothing else.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
