@@ -109,16 +109,7 @@ func TestVerdictSentences(t *testing.T) {
 			if mv.Verdict != c.verdict {
 				t.Errorf("verdict %s, want %s: %s", mv.Verdict, c.verdict, mv.Sentence)
 			}
-			for _, w := range c.want {
-				if !strings.Contains(mv.Sentence, w) {
-					t.Errorf("sentence lacks %q: %s", w, mv.Sentence)
-				}
-			}
-			for _, w := range c.notWant {
-				if strings.Contains(mv.Sentence, w) {
-					t.Errorf("sentence says %q: %s", w, mv.Sentence)
-				}
-			}
+			checkWords(t, "sentence", mv.Sentence, c.want, c.notWant)
 			// Every printed bound lies on the same side of ±T as the
 			// bound itself.
 			if mv.Largest >= 0 {
@@ -261,16 +252,7 @@ func TestReviewerNulls(t *testing.T) {
 			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.Low = -0.01 })
 			analyzed(t, r)
 			rv := reviewerNullText(r.Sensitivity)
-			for _, w := range c.want {
-				if !strings.Contains(rv, w) {
-					t.Errorf("reply lacks %q: %s", w, rv)
-				}
-			}
-			for _, w := range c.notWant {
-				if strings.Contains(rv, w) {
-					t.Errorf("reply says %q: %s", w, rv)
-				}
-			}
+			checkWords(t, "reply", rv, c.want, c.notWant)
 		})
 	}
 }
@@ -391,16 +373,7 @@ func TestMethodsTextSituations(t *testing.T) {
 			}
 			s := analyzed(t, r)
 			text := s.Headline + "\n" + methodsText(r)
-			for _, w := range c.want {
-				if !strings.Contains(text, w) {
-					t.Errorf("text lacks %q:\n%s", w, text)
-				}
-			}
-			for _, w := range c.notWant {
-				if strings.Contains(text, w) {
-					t.Errorf("text says %q:\n%s", w, text)
-				}
-			}
+			checkWords(t, "text", text, c.want, c.notWant)
 		})
 	}
 }
@@ -445,16 +418,7 @@ func TestMetricsCaptionBars(t *testing.T) {
 			r.Settings.PairedResamples, r.Settings.Iterations = c.paired, c.iters
 			analyzed(t, r)
 			f := metricsFigure(r)
-			for _, w := range c.want {
-				if !strings.Contains(f.Caption, w) {
-					t.Errorf("caption lacks %q: %s", w, f.Caption)
-				}
-			}
-			for _, w := range c.notWant {
-				if strings.Contains(f.Caption, w) {
-					t.Errorf("caption says %q: %s", w, f.Caption)
-				}
-			}
+			checkWords(t, "caption", f.Caption, c.want, c.notWant)
 			m := r.Sensitivity.Metrics[0]
 			pts := metricPoints(r, m, "good")
 			if len(pts) == 0 {
@@ -855,6 +819,22 @@ func TestRingsNoteBothSteps(t *testing.T) {
 	for _, w := range []string{"A solid arrow pointing left", "a dashed one, that the test records first falling inside place lower"} {
 		if !strings.Contains(ringsNote, w) {
 			t.Errorf("note lacks %q: %s", w, ringsNote)
+		}
+	}
+}
+
+// checkWords fails t for each of want that text lacks and each of notWant
+// it holds, naming what the text is (a sentence, a caption, ...).
+func checkWords(t *testing.T, what, text string, want, notWant []string) {
+	t.Helper()
+	for _, w := range want {
+		if !strings.Contains(text, w) {
+			t.Errorf("%s lacks %q:\n%s", what, w, text)
+		}
+	}
+	for _, w := range notWant {
+		if strings.Contains(text, w) {
+			t.Errorf("%s says %q:\n%s", what, w, text)
 		}
 	}
 }
