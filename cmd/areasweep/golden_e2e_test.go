@@ -123,8 +123,9 @@ type e2ePaired struct {
 	High         float64 `json:"ci_high"`
 	TestSetShift float64 `json:"test_set_shift"`
 	// Position is "inside", "outside", "overlapping" or "too_few" (nil
-	// when undefined or of kind model); Reading the reading against 0 of
-	// a null record.
+	// when undefined or of kind model); Reading the reading of the
+	// interval against 0 of a null or model record ("above", "below",
+	// "not_above", "too_few").
 	Position *string `json:"position"`
 	Reading  string  `json:"reading"`
 }
@@ -336,8 +337,8 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 // documented rules, without areasweep: membership, areas, the points'
 // cells, every model's scores and the distance-only null's (Boyce aside),
 // the sorting-bias means, the rings, and the paired differences of method
-// "placements" with the AUC verdicts and readings against the null built
-// on them (checkE2EPaired). The source of each expected value
+// "placements" with the AUC verdicts, readings against the null and model
+// rankings built on them (checkE2EPaired). The source of each expected value
 // is named beside its check. Tolerances: 1e-9 absolute for the exact
 // quantities (AUCs, SE, partial ROC, omission, predicted area, paired
 // differences with their SE, interval and test_set_shift), 1e-9
@@ -779,6 +780,69 @@ func checkE2EPaired(t *testing.T, st *e2eStudy, res *report.Results, same map[st
 	}
 	if n == 0 {
 		t.Error("no AUC reading against the null compared")
+	}
+	// Model rankings (README sensitivity.rankings[], report.ModelRanking):
+	// on each extent, Model better than Other beyond noise when the
+	// interval of the difference lies above 0, worse when below, within
+	// noise otherwise; too_few (fewer than 10 common test points) not
+	// counted. Golden readings on the extents whose membership matched,
+	// areasweep's own on the others.
+	pairs := map[string]e2ePaired{}
+	for _, w := range exp.Paired {
+		if w.Kind == "model" {
+			pairs[w.Metric+"/"+w.Model+"/"+w.OtherModel+"/"+w.Extent] = w
+		}
+	}
+	ranked := 0
+	for _, r := range sens.Rankings {
+		if r.Metric != "auc" && r.Metric != "auc_unweighted" {
+			continue
+		}
+		lab := r.Metric + " " + r.Model + " - " + r.Other
+		var better, worse, within, extents int
+		for _, d := range r.Diffs {
+			w, ok := pairs[r.Metric+"/"+r.Model+"/"+r.Other+"/"+d.Extent]
+			if !ok {
+				t.Errorf("ranking %s on %s: golden.py forms no such difference", lab, d.Extent)
+				continue
+			}
+			reading := w.Reading
+			if !same[d.Extent] {
+				reading = ""
+				switch {
+				case d.Defined && d.Position == "too_few":
+					reading = "too_few"
+				case d.Defined && d.Low > 0:
+					reading = "above"
+				case d.Defined && d.High < 0:
+					reading = "below"
+				case d.Defined:
+					reading = "not_above"
+				}
+			} else if d.Defined != w.Defined || d.CommonPoints != w.CommonPoints || d.Method != "placements" || (d.Position == "too_few") != (w.Reading == "too_few") ||
+				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(d.Low-w.Low) > 1e-9 || math.Abs(d.High-w.High) > 1e-9) {
+				t.Errorf("ranking %s on %s: %+v, want common points %d diff %v interval %v..%v reading %s (golden.py paired_analysis)",
+					lab, d.Extent, d, w.CommonPoints, w.Diff, w.Low, w.High, w.Reading)
+			}
+			switch reading {
+			case "above":
+				better++
+			case "below":
+				worse++
+			case "not_above":
+				within++
+			}
+			if reading != "" && reading != "too_few" {
+				extents++
+			}
+		}
+		if r.Better != better || r.Worse != worse || r.WithinNoise != within || r.Extents != extents {
+			t.Errorf("ranking %s: better %d worse %d within noise %d on %d extents, want %d %d %d %d", lab, r.Better, r.Worse, r.WithinNoise, r.Extents, better, worse, within, extents)
+		}
+		ranked++
+	}
+	if len(st.Spec.Models) > 1 && ranked != 2 {
+		t.Errorf("%d AUC rankings compared, want 2 (auc and auc_unweighted)", ranked)
 	}
 }
 

@@ -1010,7 +1010,9 @@ def paired_analysis(spec, extents, status, scores):
     interval inside -T..+T, extent-sensitive when one lies wholly outside,
     undetermined otherwise) and the readings against the null (above when
     the interval is wholly above 0, below when wholly below, not_above
-    otherwise, too_few under 10 common points)."""
+    otherwise, too_few under 10 common points), read the same way for two
+    models on one extent (the model rankings: better, worse, within
+    noise)."""
     sc = {(s["model"], s["extent"]): s for s in scores if s["scored"]}
     models = [m["name"] for m in spec["models"]]
     tol = spec.get("tolerance_auc", TOLERANCE_AUC)
@@ -1034,7 +1036,7 @@ def paired_analysis(spec, extents, status, scores):
             rec.update(paired_difference(sc[(ma, ea)], sc[(mb, eb)], key))
             if kind != "model":
                 rec["position"] = position(rec, tol)
-            if kind == "null" and rec["defined"]:
+            if kind != "extent" and rec["defined"]:
                 rec["reading"] = "too_few" if rec["common_points"] < MIN_PAIRED_POINTS else (
                     "above" if rec["ci_low"] > 0 else "below" if rec["ci_high"] < 0 else "not_above")
             paired.append(rec)
