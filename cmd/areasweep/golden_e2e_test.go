@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -47,6 +48,8 @@ type e2eStudy struct {
 				Polygon json.RawMessage `json:"polygon"`
 			} `json:"features"`
 		} `json:"ecoregions"`
+		// ToleranceAUC, when present, is the study's --tolerance-auc.
+		ToleranceAUC  *float64  `json:"tolerance_auc"`
 		RegionBuffers []float64 `json:"region_buffers"`
 		PointBuffers  []float64 `json:"point_buffers"`
 		HullBuffers   []float64 `json:"hull_buffers"`
@@ -88,7 +91,47 @@ type e2eStudy struct {
 			AUCRing                    float64 `json:"auc_ring"`
 			AUCOuter                   float64 `json:"auc_outer"`
 		} `json:"rings"`
+		// Paired holds golden.py's paired_analysis: the paired[] records
+		// of method "placements" (AUC and unweighted AUC), with the
+		// position against the tolerance (kinds extent and null) and the
+		// reading against 0 (kind null).
+		Paired   []e2ePaired `json:"paired"`
+		Verdicts []struct {
+			Metric, Model, Verdict string
+			Tolerance              float64 `json:"tolerance"`
+			BaseExtent             string  `json:"base_extent"`
+		} `json:"verdicts"`
 	} `json:"expected"`
+}
+
+// e2ePaired is one paired difference (model on extent) minus (other model
+// on other extent) as golden.py's paired_difference computes it.
+type e2ePaired struct {
+	Metric       string  `json:"metric"`
+	Kind         string  `json:"kind"`
+	Model        string  `json:"model"`
+	Extent       string  `json:"extent"`
+	OtherModel   string  `json:"other_model"`
+	OtherExtent  string  `json:"other_extent"`
+	CommonPoints int     `json:"common_points"`
+	Defined      bool    `json:"defined"`
+	A            float64 `json:"a"`
+	B            float64 `json:"b"`
+	Diff         float64 `json:"diff"`
+	SE           float64 `json:"se"`
+	Low          float64 `json:"ci_low"`
+	High         float64 `json:"ci_high"`
+	TestSetShift float64 `json:"test_set_shift"`
+	// Position is "inside", "outside", "overlapping" or "too_few" (nil
+	// when undefined or of kind model); Reading the reading of the
+	// interval against 0 of a null or model record ("above", "below",
+	// "not_above", "too_few").
+	Position *string `json:"position"`
+	Reading  string  `json:"reading"`
+}
+
+func (p e2ePaired) key() string {
+	return p.Metric + " " + p.Kind + " " + p.Model + "/" + p.Extent + " - " + p.OtherModel + "/" + p.OtherExtent
 }
 
 // e2eModel is one model raster given by integer arithmetic (golden.py's
@@ -264,6 +307,9 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 	}
 	fmt.Fprintf(&yaml, "occurrences: occ.csv\nregion: region.geojson\nregion-buffers: %s\npoint-buffers: %s\nhull-buffers: %s\n", list(sp.RegionBuffers), list(sp.PointBuffers), list(append([]float64{0}, sp.HullBuffers...)))
 	fmt.Fprintf(&yaml, "e: %s\nthresholds: %s\niterations: %d\nseed: %d\nmembership-tif: true\nout: out\n", list(sp.E), list(sp.Thresholds), g.Iterations, g.Seed)
+	if sp.ToleranceAUC != nil {
+		fmt.Fprintf(&yaml, "tolerance-auc: %s\n", strconv.FormatFloat(*sp.ToleranceAUC, 'g', -1, 64))
+	}
 	files := map[string]string{"occ.csv": occ.String(), "region.geojson": region}
 	if eco := sp.Ecoregions; eco != nil {
 		var units []string
@@ -289,10 +335,13 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 // a grid reaching the North Pole with a polar cap as region)
 // and compares what it reports with the values computed there from the
 // documented rules, without areasweep: membership, areas, the points'
-// cells, every model's scores and the distance-only null's (Boyce aside)
-// and the sorting-bias means. The source of each expected value
+// cells, every model's scores and the distance-only null's (Boyce aside),
+// the sorting-bias means, the rings, and the paired differences of method
+// "placements" with the AUC verdicts, readings against the null and model
+// rankings built on them (checkE2EPaired). The source of each expected value
 // is named beside its check. Tolerances: 1e-9 absolute for the exact
-// quantities (AUCs, SE, partial ROC, omission, predicted area), 1e-9
+// quantities (AUCs, SE, partial ROC, omission, predicted area, paired
+// differences with their SE, interval and test_set_shift), 1e-9
 // relative for binomial p-values and for areas (latitude-longitude cells
 // are exact; the equal-area grid's planar area differs from pyproj's WGS84
 // area by 4e-10, GRS80 against WGS84; the UTM grid's block-scaled areas by
@@ -525,6 +574,288 @@ func checkE2E(t *testing.T, st *e2eStudy, res *report.Results, names []string, b
 		t.Errorf("%d rings, want %d", len(res.Rings), len(exp.Rings))
 	}
 	t.Logf("%d of %d rings compared (the others hold a buffer whose edge cells differ within the margin)", checked, len(exp.Rings))
+	checkE2EPaired(t, st, res, same)
+}
+
+// checkE2EPaired compares the paired differences of method "placements"
+// and the readings built on them with golden.py's paired_analysis, on the
+// extents whose membership matched cell for cell (same). The records from
+// paired resamples (partial ROC, omission, Boyce) rest on areasweep's own
+// random draws and are not checked here.
+func checkE2EPaired(t *testing.T, st *e2eStudy, res *report.Results, same map[string]bool) {
+	t.Helper()
+	exp := &st.Expected
+	got := map[string]report.Paired{}
+	for _, p := range res.Paired {
+		if p.Method != "placements" {
+			continue
+		}
+		if p.Metric != "auc" && p.Metric != "auc_unweighted" {
+			t.Errorf("paired %s %s: method placements for a metric other than AUC", p.Metric, p.Kind)
+		}
+		k := e2ePaired{Metric: p.Metric, Kind: string(p.Kind), Model: p.Model, Extent: p.Extent, OtherModel: p.OtherModel, OtherExtent: p.OtherExtent}.key()
+		got[k] = p
+	}
+	want := map[string]e2ePaired{}
+	checked := 0
+	for _, w := range exp.Paired {
+		k := w.key()
+		want[k] = w
+		if !same[w.Extent] || !same[w.OtherExtent] {
+			continue
+		}
+		p, ok := got[k]
+		if !ok {
+			t.Errorf("paired %s missing", k)
+			continue
+		}
+		checked++
+		// README "Paired differences", results.json paired[] and
+		// metrics.PairedPlacements: on the common test points D_i = a_i -
+		// b_i from golden.py's placements, diff = mean D, se = sqrt(sum
+		// (D_i - diff)^2 / (n(n-1))), diff -+ z se with z =
+		// scipy.stats.norm.ppf(0.975), a and b the means of each side's
+		// placements there, test_set_shift = (sklearn AUC of each side on
+		// its own points, difference) - diff.
+		if p.CommonPoints != w.CommonPoints || p.Defined != w.Defined {
+			t.Errorf("paired %s: common points %d defined %v, want %d %v (golden.py paired_difference)", k, p.CommonPoints, p.Defined, w.CommonPoints, w.Defined)
+			continue
+		}
+		if !w.Defined {
+			continue
+		}
+		for _, c := range []struct {
+			name      string
+			got, want float64
+		}{{"a", p.A, w.A}, {"b", p.B, w.B}, {"diff", p.Diff, w.Diff}, {"se", p.SE, w.SE}, {"ci_low", p.Low, w.Low}, {"ci_high", p.High, w.High},
+			{"test_set_shift", p.TestSetShift, w.TestSetShift}} {
+			if math.Abs(c.got-c.want) > 1e-9 {
+				t.Errorf("paired %s: %s %v, want %v (numpy on golden.py's placements, scipy norm.ppf)", k, c.name, c.got, c.want)
+			}
+		}
+	}
+	for k, p := range got {
+		if _, ok := want[k]; !ok && same[p.Extent] && same[p.OtherExtent] {
+			t.Errorf("paired %s: not a record golden.py's paired_analysis forms", k)
+		}
+	}
+	t.Logf("%d of %d paired placement differences compared (the others involve a buffer whose edge cells differ within the margin)", checked, len(exp.Paired))
+
+	sens := res.Sensitivity
+	if sens == nil {
+		t.Fatal("results.json has no sensitivity analysis")
+	}
+	tol := 0.02 // README: the default AUC tolerance (report.DefaultToleranceAUC)
+	if st.Spec.ToleranceAUC != nil {
+		tol = *st.Spec.ToleranceAUC
+	}
+	for _, m := range sens.Metrics {
+		if (m.Key == "auc" || m.Key == "auc_unweighted") && m.Tolerance != tol {
+			t.Errorf("metric %s: tolerance %v, want %v", m.Key, m.Tolerance, tol)
+		}
+	}
+	// Verdicts: README "Verdicts are equivalence judgements" and
+	// report.ModelVerdict: robust when every difference from the base has
+	// its interval inside -T..+T, extent-sensitive when one lies wholly
+	// outside, undetermined otherwise; a difference on fewer than
+	// report.MinPairedPoints (10) common test points is too_few, not
+	// judged. Positions and verdicts from golden.py's paired_analysis; on
+	// the extents whose buffer-edge cells differ within the margin
+	// areasweep's own position enters the rule.
+	mvs := map[string]report.ModelVerdict{}
+	for _, mv := range sens.ModelVerdicts {
+		mvs[mv.Metric+"/"+mv.Model] = mv
+	}
+	summary := map[string][]string{}
+	for _, v := range exp.Verdicts {
+		lab := v.Metric + "/" + v.Model
+		mv, ok := mvs[lab]
+		if !ok {
+			t.Errorf("verdict %s missing", lab)
+			continue
+		}
+		if mv.Base != v.BaseExtent || mv.Tolerance != v.Tolerance {
+			t.Errorf("verdict %s: base %s tolerance %v, want %s %v", lab, mv.Base, mv.Tolerance, v.BaseExtent, v.Tolerance)
+		}
+		wantExt := map[string]e2ePaired{}
+		for _, w := range exp.Paired {
+			if w.Metric == v.Metric && w.Kind == "extent" && w.Model == v.Model {
+				wantExt[w.Extent] = w
+			}
+		}
+		if len(mv.Diffs) != len(wantExt) {
+			t.Errorf("verdict %s: %d differences from the base, want %d", lab, len(mv.Diffs), len(wantExt))
+		}
+		var pos []string
+		mixed := false
+		for _, d := range mv.Diffs {
+			w, ok := wantExt[d.Extent]
+			if !ok {
+				t.Errorf("verdict %s: a difference on %s, which golden.py does not form", lab, d.Extent)
+				continue
+			}
+			wp := ""
+			if w.Position != nil {
+				wp = *w.Position
+			}
+			if !same[d.Extent] {
+				mixed = true
+				pos = append(pos, d.Position)
+				if d.Position != wp {
+					t.Logf("verdict %s: on %s (edge cells within the margin) position %s, golden.py %s", lab, d.Extent, d.Position, wp)
+				}
+				continue
+			}
+			pos = append(pos, wp)
+			if d.Position != wp || d.Defined != w.Defined || d.CommonPoints != w.CommonPoints || d.Method != "placements" ||
+				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(d.Low-w.Low) > 1e-9 || math.Abs(d.High-w.High) > 1e-9 || math.Abs(d.TestSetShift-w.TestSetShift) > 1e-9) {
+				t.Errorf("verdict %s: difference on %s %+v, want position %q common points %d diff %v interval %v..%v shift %v (golden.py paired_analysis)",
+					lab, d.Extent, d, wp, w.CommonPoints, w.Diff, w.Low, w.High, w.TestSetShift)
+			}
+		}
+		wantV := v.Verdict
+		if mixed {
+			wantV = e2eVerdictRule(pos)
+		}
+		if string(mv.Verdict) != wantV {
+			t.Errorf("verdict %s: %s, want %s (positions %v, tolerance %v; README rule)", lab, mv.Verdict, wantV, pos, tol)
+		}
+		summary[v.Metric] = append(summary[v.Metric], wantV)
+	}
+	// sensitivity.verdicts: extent-sensitive when any model's is, robust
+	// when every model's is, undetermined otherwise (README).
+	for _, v := range sens.Verdicts {
+		vs, ok := summary[v.Metric]
+		if !ok {
+			continue
+		}
+		want := "undetermined"
+		switch {
+		case slices.Contains(vs, "extent-sensitive"):
+			want = "extent-sensitive"
+		case !slices.ContainsFunc(vs, func(s string) bool { return s != "robust" }):
+			want = "robust"
+		}
+		if string(v.Verdict) != want || v.Tolerance != tol {
+			t.Errorf("verdict %s: %s tolerance %v, want %s %v (models %v)", v.Metric, v.Verdict, v.Tolerance, want, tol, vs)
+		}
+		delete(summary, v.Metric)
+	}
+	if len(summary) > 0 {
+		t.Errorf("no summary verdict for %v", summary)
+	}
+	// Readings against the null (README sensitivity.above_null[]): above
+	// when the interval is wholly above 0, below when wholly below,
+	// not_above otherwise, too_few on fewer than 10 common test points.
+	readings := map[string]e2ePaired{}
+	for _, w := range exp.Paired {
+		if w.Kind == "null" && w.Metric == "auc" {
+			readings[w.Model+"/"+w.Extent] = w
+		}
+	}
+	n := 0
+	for _, an := range sens.AboveNull {
+		if an.Metric != "auc" {
+			continue
+		}
+		for _, g := range an.Gaps {
+			w, ok := readings[an.Model+"/"+g.Extent]
+			if !ok || an.Null != w.OtherModel {
+				t.Errorf("above null %s - %s on %s: golden.py forms no such difference", an.Model, an.Null, g.Extent)
+				continue
+			}
+			if g.Extent == an.BaseExtent && an.BaseReading != w.Reading {
+				t.Errorf("above null %s: base reading %s, want %s", an.Model, an.BaseReading, w.Reading)
+			}
+			if !same[g.Extent] {
+				continue
+			}
+			n++
+			if g.Reading != w.Reading || g.CommonPoints != w.CommonPoints || g.Method != "placements" ||
+				math.Abs(g.Diff-w.Diff) > 1e-9 || math.Abs(g.Low-w.Low) > 1e-9 || math.Abs(g.High-w.High) > 1e-9 {
+				t.Errorf("above null %s on %s: %+v, want reading %s common points %d diff %v interval %v..%v (golden.py paired_analysis)",
+					an.Model, g.Extent, g, w.Reading, w.CommonPoints, w.Diff, w.Low, w.High)
+			}
+		}
+	}
+	if n == 0 {
+		t.Error("no AUC reading against the null compared")
+	}
+	// Model rankings (README sensitivity.rankings[], report.ModelRanking):
+	// on each extent, Model better than Other beyond noise when the
+	// interval of the difference lies above 0, worse when below, within
+	// noise otherwise; too_few (fewer than 10 common test points) not
+	// counted. Golden readings on the extents whose membership matched,
+	// areasweep's own on the others.
+	pairs := map[string]e2ePaired{}
+	for _, w := range exp.Paired {
+		if w.Kind == "model" {
+			pairs[w.Metric+"/"+w.Model+"/"+w.OtherModel+"/"+w.Extent] = w
+		}
+	}
+	ranked := 0
+	for _, r := range sens.Rankings {
+		if r.Metric != "auc" && r.Metric != "auc_unweighted" {
+			continue
+		}
+		lab := r.Metric + " " + r.Model + " - " + r.Other
+		var better, worse, within, extents int
+		for _, d := range r.Diffs {
+			w, ok := pairs[r.Metric+"/"+r.Model+"/"+r.Other+"/"+d.Extent]
+			if !ok {
+				t.Errorf("ranking %s on %s: golden.py forms no such difference", lab, d.Extent)
+				continue
+			}
+			reading := w.Reading
+			if !same[d.Extent] {
+				reading = ""
+				switch {
+				case d.Defined && d.Position == "too_few":
+					reading = "too_few"
+				case d.Defined && d.Low > 0:
+					reading = "above"
+				case d.Defined && d.High < 0:
+					reading = "below"
+				case d.Defined:
+					reading = "not_above"
+				}
+			} else if d.Defined != w.Defined || d.CommonPoints != w.CommonPoints || d.Method != "placements" || (d.Position == "too_few") != (w.Reading == "too_few") ||
+				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(d.Low-w.Low) > 1e-9 || math.Abs(d.High-w.High) > 1e-9) {
+				t.Errorf("ranking %s on %s: %+v, want common points %d diff %v interval %v..%v reading %s (golden.py paired_analysis)",
+					lab, d.Extent, d, w.CommonPoints, w.Diff, w.Low, w.High, w.Reading)
+			}
+			switch reading {
+			case "above":
+				better++
+			case "below":
+				worse++
+			case "not_above":
+				within++
+			}
+			if reading != "" && reading != "too_few" {
+				extents++
+			}
+		}
+		if r.Better != better || r.Worse != worse || r.WithinNoise != within || r.Extents != extents {
+			t.Errorf("ranking %s: better %d worse %d within noise %d on %d extents, want %d %d %d %d", lab, r.Better, r.Worse, r.WithinNoise, r.Extents, better, worse, within, extents)
+		}
+		ranked++
+	}
+	if len(st.Spec.Models) > 1 && ranked != 2 {
+		t.Errorf("%d AUC rankings compared, want 2 (auc and auc_unweighted)", ranked)
+	}
+}
+
+// e2eVerdictRule is README's verdict rule on the positions of a model's
+// differences from the base ("" for an undefined one).
+func e2eVerdictRule(pos []string) string {
+	if slices.Contains(pos, "outside") {
+		return "extent-sensitive"
+	}
+	if len(pos) > 0 && !slices.ContainsFunc(pos, func(s string) bool { return s != "inside" }) {
+		return "robust"
+	}
+	return "undetermined"
 }
 
 // checkE2EBoyce checks the Boyce index's windows against golden.py's

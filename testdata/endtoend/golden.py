@@ -81,6 +81,17 @@ from the documented rules WITHOUT areasweep:
               nearest scored training point) and the sorting-bias means
               (Hijmans 2012) per extent; the rings of the nested chains
               (AUC against the inner, ring and outer cells, sklearn).
+  paired      results.json paired[] records of method "placements" (AUC
+              and unweighted AUC): each scored extent minus base per model
+              and null, each pair of models per extent, each model minus
+              the distance-only null per extent, from the placements above
+              on the common test points (numpy; z = scipy.stats.norm.ppf);
+              the AUC verdicts per model (README's robust /
+              extent-sensitive / undetermined rule against the study's
+              tolerance, 10 common test points at least) and the readings
+              against the null (see paired_analysis). The records from
+              paired resamples (partial ROC, omission, Boyce) depend on
+              areasweep's own random draws and are not recomputed here.
 
 Deterministic: fixed seeds, no clock, sorted keys. Run with /usr/bin/python3
 (Debian's python3-gdal, python3-numpy, python3-sklearn, python3-scipy,
@@ -96,7 +107,7 @@ import numpy as np
 from osgeo import gdal, ogr, osr
 from pyproj import Geod, Transformer
 from scipy.spatial import cKDTree
-from scipy.stats import binomtest, spearmanr
+from scipy.stats import binomtest, norm, spearmanr
 from sklearn.metrics import roc_auc_score
 
 gdal.UseExceptions()
@@ -134,6 +145,10 @@ STUDIES = [
         region=dict(crs="CRS84", features=[[[[14.5531, 48.0517], [16.5523, 48.1019], [16.7041, 48.9032], [15.6113, 48.5487],
                                               [14.6027, 48.8521], [14.5531, 48.0517]]]]),
         region_buffers=[15], point_buffers=[], hull_buffers=[10], e=[0.05, 0.1], thresholds=[0.5, 0.75], train=18, test=30,
+        # AUC tolerance between the int16 model's largest difference from
+        # base (interval 0.030..0.046: overlapping) and f32's (0.055..0.122:
+        # outside), so that the two models get different verdicts.
+        tolerance_auc=0.045,
     ),
     dict(
         name="laea", crs="EPSG:3035", width=150, height=110,
@@ -198,6 +213,9 @@ STUDIES.append(dict(
                                          [-180.0, 84.013]]]]),
     region_buffers=[-35, 40], point_buffers=[80], hull_buffers=[25], e=[0.05, 0.1], thresholds=[1.0],
     train=20, test=30,
+    # Every judged difference from base within +-0.25, the others on too
+    # few test points: AUC undetermined.
+    tolerance_auc=0.25,
 ))
 ITERATIONS, SEED = 10, 11
 
@@ -922,7 +940,121 @@ def study(spec):
                               "inner_area_km2": float(area[mi].sum()), "ring_area_km2": float(area[mr].sum()),
                               "ring_cells": int(mr.sum()), "auc_inner": auc(v[mi], area[mi], te),
                               "auc_ring": auc(v[mr], area[mr], te), "auc_outer": auc(v[mo], area[mo], te)})
-    return {"points": points, "extents": ext_out, "scores": scores, "rings": rings}
+    paired, verdicts, above_null = paired_analysis(spec, extents, status, scores)
+    return {"points": points, "extents": ext_out, "scores": scores, "rings": rings,
+            "paired": paired, "verdicts": verdicts, "above_null": above_null}
+
+
+# README "Verdicts are equivalence judgements": the default AUC tolerance T
+# (our own choice; a study may set its own, --tolerance-auc) and the
+# cut-off below which a paired difference is reported but not judged
+# (report/sensitivity.go MinPairedPoints).
+TOLERANCE_AUC, MIN_PAIRED_POINTS = 0.02, 10
+
+
+def paired_difference(sa, sb, key):
+    """README "Paired differences" and results.json paired[] (method
+    "placements"): the placements of the test points both sides hold (by
+    point id), D_i = a_i - b_i, diff = mean D, se = sqrt(sum (D_i - diff)^2
+    / (n (n - 1))), the normal 95% interval diff -+ z se with z =
+    scipy.stats.norm.ppf(0.975); a and b the means of each side's
+    placements on those points; test_set_shift = (each side's own AUC from
+    sklearn, difference) - diff, 0 when both hold the same points; not
+    defined on fewer than two common points."""
+    pa, pb = dict(map(tuple, sa[key])), dict(map(tuple, sb[key]))
+    common = sorted(set(pa) & set(pb))
+    n = len(common)
+    rec = {"common_points": n, "defined": n >= 2}
+    if n < 2:
+        return rec
+    a = np.array([pa[i] for i in common])
+    b = np.array([pb[i] for i in common])
+    d = a - b
+    diff = float(d.mean())
+    se = float(math.sqrt(np.sum((d - diff) ** 2) / (n * (n - 1))))
+    z = float(norm.ppf(0.975))
+    own = "auc" if key == "placements" else "auc_unweighted"
+    same = n == len(pa) and n == len(pb)
+    rec.update(a=float(a.mean()), b=float(b.mean()), diff=diff, se=se, ci_low=diff - z * se, ci_high=diff + z * se,
+               test_set_shift=0.0 if same else (sa[own] - sb[own]) - diff)
+    return rec
+
+
+def position(rec, tol):
+    """README: the 95% interval against -T..+T: "inside" (lo >= -T and
+    hi <= T), "outside" (lo > T or hi < -T), "overlapping" otherwise;
+    "too_few" on fewer than 10 common test points; None when undefined.
+    The script stops when an end lies within 1e-6 of +-T, where rounding
+    could flip the position."""
+    if not rec["defined"]:
+        return None
+    if rec["common_points"] < MIN_PAIRED_POINTS:
+        return "too_few"
+    lo, hi = rec["ci_low"], rec["ci_high"]
+    if min(abs(lo - tol), abs(lo + tol), abs(hi - tol), abs(hi + tol)) < 1e-6:
+        sys.exit(f"an interval end lies within 1e-6 of the tolerance {tol}: {rec}; choose another tolerance")
+    if lo >= -tol and hi <= tol:
+        return "inside"
+    if lo > tol or hi < -tol:
+        return "outside"
+    return "overlapping"
+
+
+def paired_analysis(spec, extents, status, scores):
+    """results.json paired[] of method "placements" (metrics auc and
+    auc_unweighted) and the readings built on them: every scored extent
+    minus the base extent per model and null (kind "extent"), each pair of
+    models in model order per extent ("model"), each model minus the
+    distance-only null per extent ("null"); the AUC verdicts per model and
+    metric (README: robust when every difference from the base has its
+    interval inside -T..+T, extent-sensitive when one lies wholly outside,
+    undetermined otherwise) and the readings against the null (above when
+    the interval is wholly above 0, below when wholly below, not_above
+    otherwise, too_few under 10 common points), read the same way for two
+    models on one extent (the model rankings: better, worse, within
+    noise)."""
+    sc = {(s["model"], s["extent"]): s for s in scores if s["scored"]}
+    models = [m["name"] for m in spec["models"]]
+    tol = spec.get("tolerance_auc", TOLERANCE_AUC)
+    ok = [eid for eid, _, _ in extents if status[eid] == "ok" and any((m, eid) in sc for m in models + ["distance_null"])]
+    base = "base"
+    if base not in ok:
+        sys.exit(f"{spec['name']}: the base extent is not scored; the golden values assume it is")
+    jobs = []
+    for m in models + ["distance_null"]:
+        if (m, base) in sc:
+            jobs += [("extent", m, e, m, base) for e in ok if e != base and (m, e) in sc]
+    for e in ok:
+        for i, a in enumerate(models):
+            jobs += [("model", a, e, b, e) for b in models[i + 1:] if (a, e) in sc and (b, e) in sc]
+    for e in ok:
+        jobs += [("null", a, e, "distance_null", e) for a in models if (a, e) in sc and ("distance_null", e) in sc]
+    paired = []
+    for kind, ma, ea, mb, eb in jobs:
+        for metric, key in (("auc", "placements"), ("auc_unweighted", "placements_unweighted")):
+            rec = {"metric": metric, "kind": kind, "model": ma, "extent": ea, "other_model": mb, "other_extent": eb}
+            rec.update(paired_difference(sc[(ma, ea)], sc[(mb, eb)], key))
+            if kind != "model":
+                rec["position"] = position(rec, tol)
+            if kind != "extent" and rec["defined"]:
+                rec["reading"] = "too_few" if rec["common_points"] < MIN_PAIRED_POINTS else (
+                    "above" if rec["ci_low"] > 0 else "below" if rec["ci_high"] < 0 else "not_above")
+            paired.append(rec)
+    verdicts = []
+    for metric in ("auc", "auc_unweighted"):
+        for m in models:
+            ds = [p for p in paired if p["metric"] == metric and p["kind"] == "extent" and p["model"] == m]
+            pos = [p["position"] for p in ds]
+            if "outside" in pos:
+                v = "extent-sensitive"
+            elif ds and all(q == "inside" for q in pos):
+                v = "robust"
+            else:
+                v = "undetermined"
+            verdicts.append({"metric": metric, "model": m, "tolerance": tol, "base_extent": base, "verdict": v})
+    above = [{"metric": p["metric"], "model": p["model"], "extent": p["extent"], "reading": p.get("reading", "undefined")}
+             for p in paired if p["kind"] == "null" and p["metric"] == "auc"]
+    return paired, verdicts, above
 
 
 def delong_se(bg, pres):
