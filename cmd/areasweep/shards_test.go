@@ -11,6 +11,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/airbusgeo/godal"
+
 	"areasweep/report"
 )
 
@@ -411,4 +413,38 @@ func TestMergeRefusesChangedSidecars(t *testing.T) {
 		defer os.WriteFile(aux, auxText, 0o644)
 		refuse(t, "removed", with, "model:m", "not those the shards read")
 	})
+}
+
+// TestVirtualRasterSourcesRecorded: a model given as a virtual raster
+// (VRT) is read from its source file, so results.json records the source
+// among the VRT's sidecars with its SHA-256 (GDAL's file list: no name
+// beside the VRT tells it).
+func TestVirtualRasterSourcesRecorded(t *testing.T) {
+	s := newSmallStudy(t)
+	src, err := godal.Open(s.model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vrt := filepath.Join(s.dir, "virtual.vrt")
+	v, err := src.Translate(vrt, []string{"-of", "VRT"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v.Close()
+	src.Close()
+	out := filepath.Join(s.dir, "out")
+	if _, se, code := runBin(t, s.args(out, "--model", "v="+vrt)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	b, _ := os.ReadFile(s.model)
+	want := report.Sidecar{Path: s.model, SHA256: fmt.Sprintf("%x", sha256.Sum256(b))}
+	for _, in := range loadResults(t, out).Inputs {
+		if in.Role == "model:v" {
+			if len(in.Sidecars) != 1 || in.Sidecars[0] != want {
+				t.Fatalf("model v's sidecars %+v, want %+v", in.Sidecars, want)
+			}
+			return
+		}
+	}
+	t.Fatal("no input model:v in results.json")
 }

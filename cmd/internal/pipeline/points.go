@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -411,9 +412,10 @@ func listSome(items []string, n int) string {
 func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 
 // checksums records the SHA-256 of every input file, in the order of
-// the roles below, and of the sidecar files GDAL or OGR may read with it
-// (inputs.Sidecars: a raster's .prj, .aux.xml, .ovr, world file; a
-// shapefile's .shx, .dbf, .prj, .cpg), each on its own (report.Input).
+// the roles below, and of the other files GDAL or OGR may read with it
+// (sidecarFiles: a raster's .prj, .aux.xml, .ovr, world file, a virtual
+// raster's sources; a shapefile's .shx, .dbf, .prj, .cpg), each on its own
+// (report.Input).
 // The occurrence table is read by areasweep itself and has none. The
 // inputs are hashed at once on up to GOMAXPROCS goroutines (the models are
 // the large ones: a billion-cell study's two models are 6.4 GB); the
@@ -455,7 +457,7 @@ func (s *Study) checksums() error {
 				return
 			}
 			if in.kind >= 0 {
-				for _, p := range inputs.Sidecars(in.path, in.kind) {
+				for _, p := range sidecarFiles(in.path, in.kind) {
 					sum, err := fileSHA256(p)
 					if err != nil {
 						errs[i] = fmt.Errorf("sidecar of %s: %w", in.path, err)
@@ -475,6 +477,26 @@ func (s *Study) checksums() error {
 	}
 	s.res.Inputs = append(s.res.Inputs, recs...)
 	return nil
+}
+
+// sidecarFiles are the files read with the input at path other than
+// path itself, sorted: those GDAL lists for it when it opens it
+// (extent.DatasetFiles: a virtual raster's sources, a shapefile's .dbf)
+// and those found beside it by name (inputs.Sidecars: external overviews
+// and masks, which GDAL lists only once it has read them, and an
+// .aux.xml, which areasweep's GDAL never reads).
+func sidecarFiles(path string, kind int) []string {
+	files := inputs.Sidecars(path, kind)
+	// On an error the list is empty: the stage that reads the file says
+	// why it cannot be opened.
+	listed, _ := extent.DatasetFiles(path, kind == inputs.VectorSidecars)
+	for _, f := range listed {
+		if filepath.Clean(f) != filepath.Clean(path) && !slices.Contains(files, f) {
+			files = append(files, f)
+		}
+	}
+	slices.Sort(files)
+	return files
 }
 
 // sidecarsDigest is the one checksum of in's sidecar files that a shard
