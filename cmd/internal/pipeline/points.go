@@ -415,12 +415,11 @@ func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 // the roles below, and of the other files GDAL or OGR may read with it
 // (sidecarFiles: a raster's .prj, .aux.xml, .ovr, world file, a virtual
 // raster's sources; a shapefile's .shx, .dbf, .prj, .cpg), each on its own
-// (report.Input).
-// The occurrence table is read by areasweep itself and has none. The
-// inputs are hashed at once on up to GOMAXPROCS goroutines (the models are
-// the large ones: a billion-cell study's two models are 6.4 GB); the
-// records and the first error reported follow that order whatever
-// finishes first.
+// (report.Input). The occurrence table is read by areasweep itself and has
+// none. The inputs are hashed at once on up to GOMAXPROCS goroutines (the
+// models are the large ones: a billion-cell study's two models are
+// 6.4 GB); the records and the first error reported follow that order
+// whatever finishes first.
 func (s *Study) checksums() error {
 	o := s.o
 	type input struct {
