@@ -104,9 +104,13 @@ type BlockRange struct {
 }
 
 // InputChecksum names one input file and the SHA-256 of its bytes (hex).
+// Sidecars, when the input has files beside it that are read with it (a
+// shapefile's .dbf, a raster's .prj), is one hex SHA-256 over those
+// files' names and checksums, chosen by the caller; empty when it has none.
 type InputChecksum struct {
-	Name   string `json:"name"`
-	SHA256 string `json:"sha256"`
+	Name     string `json:"name"`
+	SHA256   string `json:"sha256"`
+	Sidecars string `json:"sidecars,omitempty"`
 }
 
 // ShardHeader says which run a partial file belongs to and which share of
@@ -160,8 +164,8 @@ func (h *ShardHeader) Validate() error {
 		return bad("total block count %d is negative", h.TotalBlocks)
 	}
 	for i, in := range h.Inputs {
-		if in.Name == "" || !hexSHA256.MatchString(in.SHA256) {
-			return bad("input %d (%q): needs a name and a 64-digit lower-case hex SHA-256", i+1, in.Name)
+		if in.Name == "" || !hexSHA256.MatchString(in.SHA256) || (in.Sidecars != "" && !hexSHA256.MatchString(in.Sidecars)) {
+			return bad("input %d (%q): needs a name and a 64-digit lower-case hex SHA-256 (of its sidecar files too, when given)", i+1, in.Name)
 		}
 	}
 	prev := 0
@@ -438,8 +442,10 @@ func inputDiff(a, b []InputChecksum) string {
 			return fmt.Sprintf(": missing input %q", a[i].Name)
 		case a[i].Name != b[i].Name:
 			return fmt.Sprintf(": input %d is %q vs %q", i+1, a[i].Name, b[i].Name)
-		case a[i] != b[i]:
+		case a[i].SHA256 != b[i].SHA256:
 			return fmt.Sprintf(": %q has another checksum", a[i].Name)
+		case a[i] != b[i]:
+			return fmt.Sprintf(": %q has other sidecar files (.prj, .dbf, .aux.xml ...) or other checksums of them", a[i].Name)
 		}
 	}
 	return ""

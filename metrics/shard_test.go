@@ -23,7 +23,7 @@ func shardSet(n, total int) []ShardHeader {
 		hs[i] = ShardHeader{
 			Format:      PartialFormatVersion,
 			Tool:        "v1.2.3",
-			Inputs:      []InputChecksum{{"model:gbm", hexOf("gbm")}, {"occurrences", hexOf("occ")}},
+			Inputs:      []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm")}, {Name: "occurrences", SHA256: hexOf("occ")}},
 			Settings:    hexOf("settings"),
 			Seed:        42,
 			Shard:       i + 1,
@@ -57,11 +57,19 @@ func TestCheckShardSetRefuses(t *testing.T) {
 		{"other seed", func(h []ShardHeader) []ShardHeader { h[2].Seed = 43; return h }, ErrShardMismatch, "seed (42 vs 43)"},
 		{"other settings", func(h []ShardHeader) []ShardHeader { h[1].Settings = hexOf("x"); return h }, ErrShardMismatch, "part-2.bin (shard 2/3) differ in settings"},
 		{"other input", func(h []ShardHeader) []ShardHeader {
-			h[1].Inputs = []InputChecksum{{"model:gbm", hexOf("gbm2")}, {"occurrences", hexOf("occ")}}
+			h[1].Inputs = []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm2")}, {Name: "occurrences", SHA256: hexOf("occ")}}
 			return h
 		}, ErrShardMismatch, `"model:gbm" has another checksum`},
+		{"other sidecars", func(h []ShardHeader) []ShardHeader {
+			h[1].Inputs = []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm"), Sidecars: hexOf("gbm.prj")}, {Name: "occurrences", SHA256: hexOf("occ")}}
+			return h
+		}, ErrShardMismatch, `"model:gbm" has other sidecar files`},
+		{"bad sidecars checksum", func(h []ShardHeader) []ShardHeader {
+			h[0].Inputs = []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm"), Sidecars: "abc"}, {Name: "occurrences", SHA256: hexOf("occ")}}
+			return h
+		}, ErrShardHeader, "of its sidecar files too"},
 		{"extra input", func(h []ShardHeader) []ShardHeader {
-			h[1].Inputs = append(h[1].Inputs[:2:2], InputChecksum{"region", hexOf("r")})
+			h[1].Inputs = append(h[1].Inputs[:2:2], InputChecksum{Name: "region", SHA256: hexOf("r")})
 			return h
 		}, ErrShardMismatch, `extra input "region"`},
 		{"other tool", func(h []ShardHeader) []ShardHeader { h[1].Tool = "v1.2.4"; return h }, ErrShardMismatch, "areasweep version"},

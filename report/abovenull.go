@@ -240,7 +240,8 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 }
 
 // aboveNullHeadline is the headline's sentence on the nulls: AUC only, one
-// clause per model and null.
+// clause per model and null, ending with how the gap moves from the
+// smallest to the largest extent (named as such, as the summary does).
 func aboveNullHeadline(s *Sensitivity) string {
 	var parts []string
 	for _, bg := range s.baseAUCGaps() {
@@ -257,7 +258,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
-			part += fmt.Sprintf("; the gap moves from %s on %s to %s on %s", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
+			part += fmt.Sprintf("; the gap moves from %s on %s (the smallest extent) to %s on %s (the largest)", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
 		}
 		parts = append(parts, part)
 	}

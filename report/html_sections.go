@@ -444,6 +444,9 @@ func settingsSection(r *Results) settingsView {
 	var in [][]cell
 	for _, i := range r.Inputs {
 		in = append(in, []cell{tc(i.Role), tc(i.Path), {text: i.SHA256, cls: "mono"}})
+		for _, sc := range i.Sidecars {
+			in = append(in, []cell{tc(i.Role + " (read with it)"), tc(sc.Path), {text: sc.SHA256, cls: "mono"}})
+		}
 	}
 	var ms [][]cell
 	for _, m := range r.Models {

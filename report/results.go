@@ -115,6 +115,19 @@ const (
 type Input struct {
 	Role   string `json:"role"` // "model:NAME", "null:NAME", "occurrences", "region", "ecoregions", "extra"
 	Path   string `json:"path"`
+	SHA256 string `json:"sha256"` // of the file at Path alone
+	// Sidecars are the other files GDAL or OGR may read as part of the
+	// same dataset (a raster's .prj, .aux.xml, .ovr, world file, a virtual
+	// raster's sources; a shapefile's .shx, .dbf, .prj, .cpg), those that
+	// exist, sorted by path, each with its own SHA-256; omitted when there
+	// are none. Added without a new schema version: a file without it
+	// reads as before.
+	Sidecars []Sidecar `json:"sidecars,omitempty"`
+}
+
+// Sidecar is one file read with an input (Input.Sidecars) and its SHA-256.
+type Sidecar struct {
+	Path   string `json:"path"`
 	SHA256 string `json:"sha256"`
 }
 

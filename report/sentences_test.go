@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"regexp"
 	"strconv"
@@ -207,6 +208,45 @@ func TestAboveNullBorderline(t *testing.T) {
 			t.Fatal("no AUC comparison of good with the null")
 		})
 	}
+}
+
+// TestHeadlineGapEnds: the headline's clause on how the model-minus-null
+// gap moves names its two extents as the smallest and the largest, as the
+// summary's sentence does, with the same numbers (the fixture's gap grows
+// by 0.01 per extent in family order, so the two ends differ).
+func TestHeadlineGapEnds(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i, k := 0, 0; i < len(r.Paired); i++ {
+		if p := &r.Paired[i]; p.Kind == PairedKindNull && p.Metric == "auc" {
+			p.Diff += 0.01 * float64(k)
+			k++
+		}
+	}
+	s := analyzed(t, r)
+	for _, an := range s.AboveNull {
+		if an.Metric != "auc" || an.Model != "good" {
+			continue
+		}
+		if an.SmallestExtent == an.LargestExtent {
+			t.Fatalf("the fixture's smallest and largest extent are both %s", an.SmallestExtent)
+		}
+		sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
+		want := fmt.Sprintf("the gap moves from %s on %s (the smallest extent) to %s on %s (the largest)",
+			signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
+		if sm.Diff == lg.Diff {
+			t.Fatalf("the fixture's gap is %v at both ends", sm.Diff)
+		}
+		if !strings.Contains(s.Headline, want) {
+			t.Errorf("headline lacks %q: %s", want, s.Headline)
+		}
+		if !strings.Contains(an.Sentence, fmt.Sprintf("from %s on %s (the smallest extent) to %s on %s (the largest)",
+			signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)) {
+			t.Errorf("the summary's sentence gives other ends: %s", an.Sentence)
+		}
+		return
+	}
+	t.Fatal("no AUC comparison of good with the null")
 }
 
 // nullPaired returns one AUC record of kind null per scored extent of

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"fmt"
 	"math"
 	"os"
@@ -9,6 +10,10 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/report"
 )
 
 // shardArgs are the small study's run arguments with a raster null whose
@@ -335,4 +340,111 @@ func TestMergeRelativePaths(t *testing.T) {
 	if se, code := run(s.dir, "merge", "--quiet", "--out", out, "shards/1", "shards/2"); code != 0 {
 		t.Fatalf("merge from the shards' folder: exit %d: %s", code, se)
 	}
+}
+
+// TestMergeRefusesChangedSidecars: a file read with an input (here the
+// first model's .aux.xml and .prj) is recorded in results.json with its
+// own SHA-256, shards run with it merge into exactly the single run's
+// files, and merge refuses, naming the input, shards of which one ran
+// without it, and sidecars changed or removed after the shards ran.
+func TestMergeRefusesChangedSidecars(t *testing.T) {
+	s := newSmallStudy(t)
+	without := runShards(t, s, filepath.Join(s.dir, "without"), 2)
+	aux := s.model + ".aux.xml"
+	prj := strings.TrimSuffix(s.model, filepath.Ext(s.model)) + ".prj"
+	auxText := []byte("<PAMDataset></PAMDataset>\n")
+	os.WriteFile(aux, auxText, 0o644)
+	os.WriteFile(prj, []byte("a projection file areasweep records but GDAL does not read for a GeoTIFF\n"), 0o644)
+	with := runShards(t, s, filepath.Join(s.dir, "with"), 2)
+	single := filepath.Join(s.dir, "single")
+	if _, se, code := runBin(t, s.shardArgs(t, single)...); code != 0 {
+		t.Fatalf("single run: exit %d: %s", code, se)
+	}
+	var rec *report.Input
+	res := loadResults(t, single)
+	for i, in := range res.Inputs {
+		if in.Role == "model:m" {
+			rec = &res.Inputs[i]
+		}
+	}
+	wantAux := fmt.Sprintf("%x", sha256.Sum256(auxText))
+	if rec == nil || len(rec.Sidecars) != 2 || rec.Sidecars[0].Path != prj || rec.Sidecars[1].Path != aux || rec.Sidecars[1].SHA256 != wantAux {
+		t.Fatalf("model m's record %+v, want sidecars %s and %s (SHA-256 %s)", rec, prj, aux, wantAux)
+	}
+
+	merged := filepath.Join(s.dir, "merged")
+	if _, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", merged}, with...)...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, se)
+	}
+	for _, f := range []string{"results.json", "scores.csv"} {
+		a, _ := os.ReadFile(filepath.Join(single, f))
+		b, _ := os.ReadFile(filepath.Join(merged, f))
+		if len(a) == 0 || !bytes.Equal(a, b) {
+			t.Errorf("%s: merged differs from the single run", f)
+		}
+	}
+
+	refuse := func(t *testing.T, name string, files []string, want ...string) {
+		t.Helper()
+		out := filepath.Join(s.dir, "out-"+name)
+		_, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", out}, files...)...)
+		if code != 2 {
+			t.Fatalf("exit %d, want 2: %s", code, se)
+		}
+		for _, w := range want {
+			if !strings.Contains(se, w) {
+				t.Errorf("message lacks %q: %s", w, se)
+			}
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%s was created", out)
+		}
+	}
+	t.Run("one shard without", func(t *testing.T) {
+		refuse(t, "mixed", []string{without[0], with[1]}, `"model:m" has other sidecar files`)
+	})
+	t.Run("sidecar changed since", func(t *testing.T) {
+		os.WriteFile(aux, []byte("<PAMDataset><Metadata/></PAMDataset>\n"), 0o644)
+		defer os.WriteFile(aux, auxText, 0o644)
+		refuse(t, "changed", with, "model:m", s.model, "not those the shards read", filepath.Base(aux))
+	})
+	t.Run("sidecar removed since", func(t *testing.T) {
+		os.Remove(aux)
+		defer os.WriteFile(aux, auxText, 0o644)
+		refuse(t, "removed", with, "model:m", "not those the shards read")
+	})
+}
+
+// TestVirtualRasterSourcesRecorded: a model given as a virtual raster
+// (VRT) is read from its source file, so results.json records the source
+// among the VRT's sidecars with its SHA-256 (GDAL's file list: no name
+// beside the VRT tells it).
+func TestVirtualRasterSourcesRecorded(t *testing.T) {
+	s := newSmallStudy(t)
+	src, err := godal.Open(s.model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vrt := filepath.Join(s.dir, "virtual.vrt")
+	v, err := src.Translate(vrt, []string{"-of", "VRT"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v.Close()
+	src.Close()
+	out := filepath.Join(s.dir, "out")
+	if _, se, code := runBin(t, s.args(out, "--model", "v="+vrt)...); code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	b, _ := os.ReadFile(s.model)
+	want := report.Sidecar{Path: s.model, SHA256: fmt.Sprintf("%x", sha256.Sum256(b))}
+	for _, in := range loadResults(t, out).Inputs {
+		if in.Role == "model:v" {
+			if len(in.Sidecars) != 1 || in.Sidecars[0] != want {
+				t.Fatalf("model v's sidecars %+v, want %+v", in.Sidecars, want)
+			}
+			return
+		}
+	}
+	t.Fatal("no input model:v in results.json")
 }

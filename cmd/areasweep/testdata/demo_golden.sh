@@ -63,6 +63,10 @@
 #     0.7996; every other extent is unchanged);
 #   - rewritten after merging h5 and h7 into main: both changes together,
 #     nothing else.
+#   - rewritten on branch h9 (the headline's clause on the model-minus-null
+#     gap names its two extents "(the smallest extent)" and "(the
+#     largest)", as the summary's sentence does: results.json's
+#     sensitivity.headline only; every number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -137,8 +137,10 @@ var batchIDRE = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$`)
 var requiredKeys = []string{"model", "occurrences", "region"}
 
 // LoadBatch reads the study table at path (YAML for .yaml/.yml, else CSV)
-// and resolves relative paths against its folder. Every problem is
-// reported, as BatchErrors, before anything runs.
+// and resolves relative paths against its folder. Lines may end in a line
+// feed, a carriage return and line feed, or a carriage return alone
+// (Excel's "CSV (Macintosh)"; crLines, as for the occurrence table). Every
+// problem is reported, as BatchErrors, before anything runs.
 func LoadBatch(path string) (*Batch, error) {
 	if err := checkRegular(path, "study table"); err != nil {
 		return nil, err
@@ -148,7 +150,7 @@ func LoadBatch(path string) (*Batch, error) {
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
+	data, err := io.ReadAll(newLimitedReader(crLines(f), path, MaxStudyBytes*16, 0))
 	if err != nil {
 		if errors.Is(err, ErrTooLarge) {
 			return nil, BatchErrors{{File: path, Err: err}}
@@ -169,6 +171,7 @@ func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, 
 	if name == "" {
 		name = "study table"
 	}
+	data, _ = io.ReadAll(crLines(bytes.NewReader(data))) // from memory: cannot fail
 	p := &batchParser{name: name, dir: baseDir, b: &Batch{File: name, Shared: &Study{}}}
 	if isYAML {
 		p.parseYAML(data)

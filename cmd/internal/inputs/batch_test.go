@@ -93,6 +93,50 @@ func TestBatchCSVAndYAMLAgree(t *testing.T) {
 	}
 }
 
+// TestBatchCarriageReturns: a table whose lines end in a carriage return
+// alone (Excel's "CSV (Macintosh)") or in CR LF (Windows) reads as the
+// same table with line feeds, line numbers included, through LoadBatch
+// and ParseBatch, in CSV and YAML; a problem is reported on its own line.
+func TestBatchCarriageReturns(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		name, text string
+		lines      []int
+	}{
+		{"mac.csv", batchCSV, []int{6, 8}},
+		{"mac.yaml", batchYAML, []int{6, 10}},
+	} {
+		for _, end := range []string{"\r", "\r\n"} {
+			text := strings.ReplaceAll(c.text, "\n", end)
+			path := filepath.Join(dir, c.name)
+			if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			want := wantBatch(dir)
+			for i := range want {
+				want[i].Line = c.lines[i]
+			}
+			b, err := LoadBatch(path)
+			if err != nil {
+				t.Fatalf("%s ending %q: %v", c.name, end, err)
+			}
+			if !reflect.DeepEqual(b.Studies, want) || (*b.Shared)["iterations"] != 1000 {
+				t.Errorf("%s ending %q: got %d studies %+v, shared %+v", c.name, end, len(b.Studies), b.Studies, *b.Shared)
+			}
+			b, err = ParseBatch([]byte(text), path, dir, strings.HasSuffix(c.name, ".yaml"))
+			if err != nil || !reflect.DeepEqual(b.Studies, want) {
+				t.Errorf("%s ending %q, ParseBatch: %v", c.name, end, err)
+			}
+		}
+	}
+	bad := "id,model,occurrences,region,seed\roak,gbm=a.tif,p.csv,r.gpkg,1\rlynx,gbm=b.tif,q.csv,s.gpkg,many\r"
+	_, err := ParseBatch([]byte(bad), "mac.csv", "", false)
+	var errs BatchErrors
+	if !errors.As(err, &errs) || len(errs) != 1 || errs[0].Line != 3 || errs[0].Study != "lynx" {
+		t.Fatalf("want one error on line 3, study lynx: %v", err)
+	}
+}
+
 func TestBatchTemplateParses(t *testing.T) {
 	var buf bytes.Buffer
 	if err := WriteBatchTemplate(&buf); err != nil {

@@ -57,7 +57,8 @@
 // decoded by the study-file decoders, rows are laid over the shared block,
 // and every problem is collected (BatchErrors, each a *BatchError with file,
 // line, column and study id) before anything runs. Ids must be unique
-// (ignoring case) and safe as folder names.
+// (ignoring case) and safe as folder names. Lines may end in a carriage
+// return alone, as in the occurrence table (both read through crLines).
 //
 // ParseNamedPath and ParseFloatList parse the NAME=PATH and a,b,c values
 // used by both the flags and the study file.

@@ -172,6 +172,19 @@ func ParseOccurrences(r io.Reader, name string, geographic bool) ([]Record, erro
 	return recs, err
 }
 
+// crLines returns a reader of r's text in which, when its lines end in a
+// carriage return alone (Excel's "CSV (Macintosh)", classic Mac OS: no
+// line feed but some carriage return in the first 64 KiB), every return
+// reads as a line feed; any other text reads unchanged. The occurrence
+// table and the study table read through it.
+func crLines(r io.Reader) io.Reader {
+	pr := bufio.NewReaderSize(r, 64<<10)
+	if head, _ := pr.Peek(64 << 10); bytes.IndexByte(head, '\n') < 0 && bytes.IndexByte(head, '\r') >= 0 {
+		return crReader{pr}
+	}
+	return pr
+}
+
 // crReader turns every carriage return into a line feed.
 type crReader struct{ r io.Reader }
 
@@ -245,16 +258,7 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
-	// A table whose lines end in a carriage return alone (Excel's "CSV
-	// (Macintosh)", classic Mac OS) holds no line feed: its returns are
-	// read as line ends.
-	pr := bufio.NewReaderSize(r, 64<<10)
-	if head, _ := pr.Peek(64 << 10); bytes.IndexByte(head, '\n') < 0 && bytes.IndexByte(head, '\r') >= 0 {
-		r = crReader{pr}
-	} else {
-		r = pr
-	}
-	lim := newLimitedReader(r, name, MaxOccurrenceBytes, MaxLineBytes)
+	lim := newLimitedReader(crLines(r), name, MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)

@@ -10,7 +10,7 @@
 //	         points      occurrences read, placed on the grid, sampled on the
 //	                     first model (outside / no data), thinned per cell;
 //	                     the blocks sampled are kept for its pass
-//	         checksums   SHA-256 of every input
+//	         checksums   SHA-256 of every input and of its sidecar files
 //	         --out       locked, a staging folder made (package outdir)
 //	         family      extent.Build: every member's row runs
 //	Pass i   Plan        the source (raster or computed null), its values at

@@ -255,6 +255,18 @@ func (s *Study) useShards(merged *shardfile.Merged) error {
 	return nil
 }
 
+// sidecarList names in's sidecar files for a message.
+func sidecarList(in report.Input) string {
+	if len(in.Sidecars) == 0 {
+		return "none beside it now"
+	}
+	var names []string
+	for _, sc := range in.Sidecars {
+		names = append(names, filepath.Base(sc.Path))
+	}
+	return "now " + strings.Join(names, ", ")
+}
+
 // checkExpectedInputs refuses inputs whose checksums are not
 // Options.ExpectInputs (a merge's shards' inputs), naming the file.
 func (s *Study) checkExpectedInputs() error {
@@ -269,6 +281,8 @@ func (s *Study) checkExpectedInputs() error {
 			return fault.BadInput(fmt.Errorf("the inputs differ from the shards' (input %d); merge with the inputs the shards ran on", i+1))
 		case got[i].SHA256 != want[i].SHA256:
 			return fault.BadInput(fmt.Errorf("%s %s changed since the shards ran (SHA-256 %s, the shards read %s); restore the file or run the shards again", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12]))
+		case sidecarsDigest(got[i]) != want[i].Sidecars:
+			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))
 		}
 	}
 	return nil

@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -411,30 +412,37 @@ func listSome(items []string, n int) string {
 func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 
 // checksums records the SHA-256 of every input file, in the order of
-// the roles below. The files are hashed at once on up to GOMAXPROCS
-// goroutines (the models are the large ones: a billion-cell study's two
-// models are 6.4 GB); the records and the first error reported follow
-// that order whatever finishes first.
+// the roles below, and of the other files GDAL or OGR may read with it
+// (sidecarFiles: a raster's .prj, .aux.xml, .ovr, world file, a virtual
+// raster's sources; a shapefile's .shx, .dbf, .prj, .cpg), each on its own
+// (report.Input). The occurrence table is read by areasweep itself and has
+// none. The inputs are hashed at once on up to GOMAXPROCS goroutines (the
+// models are the large ones: a billion-cell study's two models are
+// 6.4 GB); the records and the first error reported follow that order
+// whatever finishes first.
 func (s *Study) checksums() error {
 	o := s.o
-	type input struct{ role, path string }
+	type input struct {
+		role, path string
+		kind       int // inputs.RasterSidecars, VectorSidecars, or -1 for none
+	}
 	var ins []input
 	for _, m := range s.models {
 		role := "model:" + m.Name
 		if m.Null {
 			role = "null:" + m.Name
 		}
-		ins = append(ins, input{role, m.Path})
+		ins = append(ins, input{role, m.Path, inputs.RasterSidecars})
 	}
-	ins = append(ins, input{"occurrences", o.Occurrences}, input{"region", o.Region})
+	ins = append(ins, input{"occurrences", o.Occurrences, -1}, input{"region", o.Region, inputs.VectorSidecars})
 	if o.Ecoregions != "" {
-		ins = append(ins, input{"ecoregions", o.Ecoregions})
+		ins = append(ins, input{"ecoregions", o.Ecoregions, inputs.VectorSidecars})
 	}
 	for _, m := range o.Extra {
 		name, path, _ := inputs.ParseNamedPath(m)
-		ins = append(ins, input{"extra:" + name, path})
+		ins = append(ins, input{"extra:" + name, path, inputs.VectorSidecars})
 	}
-	sums := make([]string, len(ins))
+	recs := make([]report.Input, len(ins))
 	errs := make([]error, len(ins))
 	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
 	var wg sync.WaitGroup
@@ -443,7 +451,21 @@ func (s *Study) checksums() error {
 		sem <- struct{}{}
 		go func() {
 			defer func() { <-sem; wg.Done() }()
-			sums[i], errs[i] = fileSHA256(in.path)
+			r := report.Input{Role: in.role, Path: s.recordedPath(in.path)}
+			if r.SHA256, errs[i] = fileSHA256(in.path); errs[i] != nil {
+				return
+			}
+			if in.kind >= 0 {
+				for _, p := range sidecarFiles(in.path, in.kind) {
+					sum, err := fileSHA256(p)
+					if err != nil {
+						errs[i] = fmt.Errorf("sidecar of %s: %w", in.path, err)
+						return
+					}
+					r.Sidecars = append(r.Sidecars, report.Sidecar{Path: s.recordedPath(p), SHA256: sum})
+				}
+			}
+			recs[i] = r
 		}()
 	}
 	wg.Wait()
@@ -451,9 +473,48 @@ func (s *Study) checksums() error {
 		if errs[i] != nil {
 			return fault.BadInput(fmt.Errorf("%s: %w", in.role, errs[i]))
 		}
-		s.res.Inputs = append(s.res.Inputs, report.Input{Role: in.role, Path: s.recordedPath(in.path), SHA256: sums[i]})
 	}
+	s.res.Inputs = append(s.res.Inputs, recs...)
 	return nil
+}
+
+// sidecarFiles are the files read with the input at path other than
+// path itself, sorted: those GDAL lists for it when it opens it
+// (extent.DatasetFiles: a virtual raster's sources, a shapefile's .dbf)
+// and those found beside it by name (inputs.Sidecars: external overviews
+// and masks, which GDAL lists only once it has read them, and an
+// .aux.xml, which areasweep's GDAL never reads).
+func sidecarFiles(path string, kind int) []string {
+	files := inputs.Sidecars(path, kind)
+	// On an error the list is empty: the stage that reads the file says
+	// why it cannot be opened.
+	listed, _ := extent.DatasetFiles(path, kind == inputs.VectorSidecars)
+	for _, f := range listed {
+		if filepath.Clean(f) != filepath.Clean(path) && !slices.Contains(files, f) {
+			files = append(files, f)
+		}
+	}
+	slices.Sort(files)
+	return files
+}
+
+// sidecarsDigest is the one checksum of in's sidecar files that a shard
+// records (metrics.InputChecksum.Sidecars), so that a merge refuses shards
+// and inputs whose sidecars differ: the hex SHA-256 of the lines
+// "SUFFIX SHA256\n", one per sidecar in in.Sidecars' order, SUFFIX being
+// the sidecar's name less the input's name without its extension (".prj",
+// ".tif.aux.xml"), so that the same files under another folder or name
+// match, as the inputs' own checksums do. Empty when there are none.
+func sidecarsDigest(in report.Input) string {
+	if len(in.Sidecars) == 0 {
+		return ""
+	}
+	stem := strings.TrimSuffix(filepath.Base(in.Path), filepath.Ext(in.Path))
+	h := sha256.New()
+	for _, sc := range in.Sidecars {
+		fmt.Fprintf(h, "%s %s\n", strings.TrimPrefix(filepath.Base(sc.Path), stem), sc.SHA256)
+	}
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 func fileSHA256(path string) (string, error) {

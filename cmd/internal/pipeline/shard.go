@@ -108,7 +108,7 @@ func (s *Study) shardHeader(i, n int, blocks []metrics.BlockRange) metrics.Shard
 	h := metrics.ShardHeader{Tool: s.o.Version, Settings: recordRun(s.o).settingsHash(), Seed: s.o.Seed,
 		Shard: i, Shards: n, TotalBlocks: s.grid.Height, Blocks: blocks}
 	for _, in := range s.res.Inputs {
-		h.Inputs = append(h.Inputs, metrics.InputChecksum{Name: in.Role, SHA256: in.SHA256})
+		h.Inputs = append(h.Inputs, metrics.InputChecksum{Name: in.Role, SHA256: in.SHA256, Sidecars: sidecarsDigest(in)})
 	}
 	return h
 }
