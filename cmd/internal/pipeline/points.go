@@ -489,8 +489,15 @@ func sidecarFiles(path string, kind int) []string {
 	// On an error the list is empty: the stage that reads the file says
 	// why it cannot be opened.
 	listed, _ := extent.DatasetFiles(path, kind == inputs.VectorSidecars)
+	// A file both name is hashed and recorded once, as Sidecars spells it
+	// (GDAL may write it ./x or dir//x).
+	seen := map[string]bool{filepath.Clean(path): true}
+	for _, f := range files {
+		seen[filepath.Clean(f)] = true
+	}
 	for _, f := range listed {
-		if filepath.Clean(f) != filepath.Clean(path) && !slices.Contains(files, f) {
+		if c := filepath.Clean(f); !seen[c] {
+			seen[c] = true
 			files = append(files, f)
 		}
 	}
