@@ -124,7 +124,7 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p.Defined {
 						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
 						g.Reading = gapReading(p.Low, p.High)
-						if p.CommonPoints < MinPairedPoints {
+						if !p.Judged() {
 							g.Reading = ReadingTooFew
 						}
 						an.Defined++

@@ -445,6 +445,11 @@ type Paired struct {
 	TestSetShift float64 `json:"test_set_shift"`
 }
 
+// Judged tells whether p rests on enough common test points to be judged
+// (a verdict, a ranking, a reading against a null): MinPairedPoints or
+// more. Fewer are reported, not judged.
+func (p *Paired) Judged() bool { return p.CommonPoints >= MinPairedPoints }
+
 // MetricKeyPartialROC, MetricKeyOmission: the MetricInfo keys of a partial
 // ROC ratio at E and of an omission rate at a threshold (value used for
 // "fixed" thresholds only).

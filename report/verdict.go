@@ -85,7 +85,7 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	d.Defined = true
 	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
 	d.Position = position(d.Low, d.High, m.Tolerance)
-	if p.CommonPoints < MinPairedPoints {
+	if !p.Judged() {
 		d.Position = positionTooFew
 	}
 	return d
