@@ -150,15 +150,12 @@ func LoadBatch(path string) (*Batch, error) {
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(newLimitedReader(crLines(f), path, MaxStudyBytes*16, 0))
+	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
 	if err != nil {
 		if errors.Is(err, ErrTooLarge) {
 			return nil, BatchErrors{{File: path, Err: err}}
 		}
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
-	}
-	if line, msg := notUTF8(data); line > 0 {
-		return nil, BatchErrors{{File: path, Line: line, Err: fmt.Errorf("%w: %s", ErrBatchSyntax, msg)}}
 	}
 	ext := strings.ToLower(filepath.Ext(path))
 	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
@@ -172,6 +169,10 @@ func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, 
 		name = "study table"
 	}
 	data, _ = io.ReadAll(crLines(bytes.NewReader(data))) // from memory: cannot fail
+	// After crLines, so that the line counts carriage-return-only lines.
+	if line, msg := notUTF8(data); line > 0 {
+		return nil, BatchErrors{{File: name, Line: line, Err: fmt.Errorf("%w: %s", ErrBatchSyntax, msg)}}
+	}
 	p := &batchParser{name: name, dir: baseDir, b: &Batch{File: name, Shared: &Study{}}}
 	if isYAML {
 		p.parseYAML(data)
