@@ -453,7 +453,7 @@ func mapFigure(r *Results) (figure, bool) {
 	if len(r.Models) > 0 {
 		model = r.Models[0].Name
 	}
-	f := figure{Name: mapFigureName, Title: "Maps of the extents", W: twoColumns}
+	f := figure{Name: mapFigureName, Title: "Maps of the extents", W: twoColumns, Dear: true}
 	if len(groups) == 1 {
 		f.W = oneColumn
 	}
