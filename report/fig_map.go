@@ -326,7 +326,7 @@ func (m *mapScene) addMarks(p *plot.Plot) error {
 				return fmt.Errorf("report: figure map: %w", err)
 			}
 			sc.GlyphStyle = gs
-			p.Add(paddingScatter{sc})
+			p.Add(newPaddingScatter(sc))
 		}
 	}
 	return nil
