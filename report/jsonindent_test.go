@@ -8,7 +8,10 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
+
+	"areasweep/report/outfile"
 )
 
 // referenceEncode is Encode as it was: encoding/json's encoder indenting.
@@ -243,4 +246,25 @@ type countingWriter struct {
 func (w *countingWriter) Write(p []byte) (int, error) {
 	w.writes++
 	return w.buf.Write(p)
+}
+
+// TestEncodeToError: a value encoding/json refuses (NaN) makes EncodeTo
+// fail with encoding/json's reason, as Encode did, and a results.json
+// written through outfile.WriteFrom is then not left behind.
+func TestEncodeToError(t *testing.T) {
+	r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r.Scores[len(r.Scores)-1].AreaKm2 = math.NaN()
+	if _, err := r.Encode(); err == nil || !strings.Contains(err.Error(), "unsupported value: NaN") {
+		t.Errorf("Encode with a NaN: %v, want encoding/json's unsupported value", err)
+	}
+	path := filepath.Join(t.TempDir(), "results.json")
+	if err := outfile.WriteFrom(path, 0o666, r.EncodeTo); err == nil {
+		t.Error("WriteFrom of results with a NaN succeeded")
+	}
+	if _, err := os.Stat(path); !os.IsNotExist(err) {
+		t.Errorf("results.json left after a failed encoding: %v", err)
+	}
 }
