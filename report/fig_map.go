@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"strings"
+	"sync"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -249,6 +250,11 @@ type mapScene struct {
 	west, south, east, north float64
 	aspect                   float64 // km per unit in x over km per unit in y
 	marks                    mapMarks
+	// outlines and items are the outlines and their legend items of
+	// each panel (mapScene.outlines), by the panel's place in the groups
+	// the scene was made for.
+	outlines [][]*outline
+	items    [][]legendItem
 }
 
 // outlineStyle is the k-th outline of a panel.
@@ -256,8 +262,10 @@ func outlineStyle(k int) draw.LineStyle {
 	return lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])
 }
 
-// newMapScene decodes the preview; marks are the point layers.
-func newMapScene(r *Results, marks mapMarks) (*mapScene, error) {
+// newMapScene decodes the preview and traces the outlines of the panels
+// of groups; marks are the point layers. The scene is read only after,
+// so that one serves every format of the figure, drawn at the same time.
+func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, error) {
 	pv := r.Preview
 	vals, masks, err := decodePreview(pv)
 	if err != nil {
@@ -276,6 +284,11 @@ func newMapScene(r *Results, marks mapMarks) (*mapScene, error) {
 	}
 	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
+	for _, g := range groups {
+		os, items := m.traceOutlines(g)
+		m.outlines = append(m.outlines, os)
+		m.items = append(m.items, items)
+	}
 	return m, nil
 }
 
@@ -289,8 +302,9 @@ func mapAspect(r *Results) float64 {
 	return math.Cos((r.Preview.Bounds[1] + r.Preview.Bounds[3]) / 2 * math.Pi / 180)
 }
 
-// outlines returns the outline of every extent of group g, in the grid CRS.
-func (m *mapScene) outlines(g mapGroup) ([]*outline, []legendItem) {
+// traceOutlines returns the outline of every extent of group g, in the
+// grid CRS, and their legend items.
+func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, []legendItem) {
 	w, h := m.r.Preview.Width, m.r.Preview.Height
 	cw, ch := (m.east-m.west)/float64(w), (m.north-m.south)/float64(h)
 	var os []*outline
@@ -326,15 +340,16 @@ func (m *mapScene) addMarks(p *plot.Plot) error {
 				return fmt.Errorf("report: figure map: %w", err)
 			}
 			sc.GlyphStyle = gs
-			p.Add(paddingScatter{sc})
+			p.Add(newPaddingScatter(sc))
 		}
 	}
 	return nil
 }
 
-// panel draws group g in cell: the map with its outline legend below. It
-// returns the map's scale in km per point (0 off geographic grids).
-func (m *mapScene) panel(g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
+// panel draws group g, the gi-th of the scene's groups, in cell: the map
+// with its outline legend below. It returns the map's scale in km per
+// point (0 off geographic grids).
+func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
 	legC, mapC := splitBottom(cell, legendH)
 	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
 	var img image.Image = m.pal
@@ -348,7 +363,7 @@ func (m *mapScene) panel(g mapGroup, cell draw.Canvas, legendH vg.Length) (float
 	} else {
 		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
 	}
-	os, items := m.outlines(g)
+	os, items := m.outlines[gi], m.items[gi]
 	for _, o := range os {
 		p.Add(o)
 	}
@@ -453,7 +468,7 @@ func mapFigure(r *Results) (figure, bool) {
 	if len(r.Models) > 0 {
 		model = r.Models[0].Name
 	}
-	f := figure{Name: mapFigureName, Title: "Maps of the extents", W: twoColumns}
+	f := figure{Name: mapFigureName, Title: "Maps of the extents", W: twoColumns, Dear: true}
 	if len(groups) == 1 {
 		f.W = oneColumn
 	}
@@ -493,8 +508,11 @@ func mapFigure(r *Results) (figure, bool) {
 	if r.Grid.Geographic {
 		f.Caption += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
 	}
+	// One scene for the three formats (they are drawn at the same time):
+	// the preview decoded and every extent's outline traced once.
+	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups) })
 	f.draw = func(dc draw.Canvas) error {
-		m, err := newMapScene(r, marks)
+		m, err := scene()
 		if err != nil {
 			return err
 		}
@@ -507,7 +525,7 @@ func mapFigure(r *Results) (figure, bool) {
 			cell.Max.X = cell.Min.X + cellW
 			cell.Max.Y = rest.Max.Y - vg.Length(gi/cols)*cellH
 			cell.Min.Y = cell.Max.Y - cellH
-			if kmPerPt, err = m.panel(g, cell, legendH); err != nil {
+			if kmPerPt, err = m.panel(gi, g, cell, legendH); err != nil {
 				return err
 			}
 		}

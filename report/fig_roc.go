@@ -144,7 +144,7 @@ func rocFigure(r *Results) figure {
 					return fmt.Errorf("report: figure roc: %w", err)
 				}
 				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
-				p.Add(paddingLine{l})
+				p.Add(newPaddingLine(l))
 			}
 			plots[i/cols][i%cols] = p
 		}

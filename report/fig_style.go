@@ -318,24 +318,96 @@ func (t boxThumb) Thumbnail(c *draw.Canvas) {
 // (paddingBoxes). A plotter.Line gives a box of its line width at every
 // point, and the plot asks for them again for each padding it computes;
 // for a few hundred ROC curves of hundreds of points that was most of the
-// memory a report allocated.
-type paddingLine struct{ *plotter.Line }
+// memory a report allocated. The boxes are computed once per set of axis
+// ranges (padCache): the plot asks four times or more while it is drawn.
+type paddingLine struct {
+	*plotter.Line
+	pad *padCache
+}
+
+// newPaddingLine returns l as a paddingLine.
+func newPaddingLine(l *plotter.Line) paddingLine { return paddingLine{l, &padCache{}} }
 
 // GlyphBoxes implements plot.GlyphBoxer.
 func (l paddingLine) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
-	return paddingBoxes(p, l.XYs, 0.5*l.LineStyle.Width)
+	return l.pad.boxes(p, l.XYs, 0.5*l.LineStyle.Width)
+}
+
+// Plot draws the line as plotter.Line's Plot does, with the same calls on
+// the canvas (so the same bytes in every format), but each stroked path
+// made at its final size rather than grown point by point. A filled or
+// stepped line is left to plotter.Line (none of the figures has one).
+func (l paddingLine) Plot(c draw.Canvas, plt *plot.Plot) {
+	if l.FillColor != nil || l.StepStyle != plotter.NoStep {
+		l.Line.Plot(c, plt)
+		return
+	}
+	trX, trY := plt.Transforms(&c)
+	ps := make([]vg.Point, len(l.XYs))
+	for i, p := range l.XYs {
+		ps[i].X = trX(p.X)
+		ps[i].Y = trY(p.Y)
+	}
+	lines := c.ClipLinesXY(ps)
+	if l.LineStyle.Width == 0 || len(lines) == 0 {
+		return
+	}
+	c.SetLineStyle(l.LineStyle)
+	for _, line := range lines {
+		if len(line) == 0 {
+			continue
+		}
+		path := make(vg.Path, 0, len(line))
+		path.Move(line[0])
+		for _, pt := range line[1:] {
+			path.Line(pt)
+		}
+		c.Stroke(path)
+	}
 }
 
 // paddingScatter is a plotter.Scatter of one glyph style that gives the
-// plot only the glyph boxes that can set its padding (paddingBoxes).
-type paddingScatter struct{ *plotter.Scatter }
+// plot only the glyph boxes that can set its padding (paddingBoxes), once
+// per set of axis ranges (padCache).
+type paddingScatter struct {
+	*plotter.Scatter
+	pad *padCache
+}
+
+// newPaddingScatter returns sc as a paddingScatter.
+func newPaddingScatter(sc *plotter.Scatter) paddingScatter { return paddingScatter{sc, &padCache{}} }
 
 // GlyphBoxes implements plot.GlyphBoxer.
 func (sc paddingScatter) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
 	if sc.GlyphStyleFunc != nil {
 		return sc.Scatter.GlyphBoxes(p) // boxes of several sizes
 	}
-	return paddingBoxes(p, sc.XYs, sc.GlyphStyle.Radius)
+	return sc.pad.boxes(p, sc.XYs, sc.GlyphStyle.Radius)
+}
+
+// padCache holds the last paddingBoxes of one plotter with the axis
+// ranges and half-side they were computed for; it is used only on linear
+// axes, whose normalisation depends on the range alone.
+type padCache struct {
+	ok                     bool
+	xmin, xmax, ymin, ymax float64
+	r                      vg.Length
+	last                   []plot.GlyphBox
+}
+
+// boxes returns paddingBoxes(p, xys, r), computed again only when p's
+// axis ranges or r changed since the last call (xys must not change).
+func (c *padCache) boxes(p *plot.Plot, xys plotter.XYs, r vg.Length) []plot.GlyphBox {
+	_, xlin := p.X.Scale.(plot.LinearScale)
+	_, ylin := p.Y.Scale.(plot.LinearScale)
+	if !xlin || !ylin {
+		return paddingBoxes(p, xys, r)
+	}
+	if !c.ok || c.xmin != p.X.Min || c.xmax != p.X.Max || c.ymin != p.Y.Min || c.ymax != p.Y.Max || c.r != r {
+		c.ok, c.xmin, c.xmax, c.ymin, c.ymax, c.r = true, p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, r
+		c.last = paddingBoxes(p, xys, r)
+	}
+	return c.last
 }
 
 // paddingBoxes returns, of the boxes of half-side r around the points xys

@@ -30,6 +30,9 @@ type figure struct {
 	// Note is a sentence printed under the figure in the page and drawn
 	// into the figure files, e.g. how to read a negative step.
 	Note string
+	// Dear marks a figure whose renderings cost several times the
+	// others': they start first (renderTasks).
+	Dear bool
 	W, H vg.Length
 	draw func(c draw.Canvas) error
 }
@@ -97,10 +100,37 @@ func recovered(what string, fn func() error) (err error) {
 	return fn()
 }
 
-// renderOrder is the order the renderings start in: the SVGs first, since
-// the page inlines them all (it is built while the other formats are
-// drawn), then the PNGs, the dearest, then the PDFs.
+// renderOrder is the order the renderings of a figure's formats start
+// in: the SVGs first, since the page inlines them all (it is built while
+// the other formats are drawn), then the PNGs, the dearest, then the PDFs.
 var renderOrder = []string{"svg", "png", "pdf"}
+
+// renderTask is one rendering: figure fs[fig] in format.
+type renderTask struct {
+	fig    int
+	format string
+}
+
+// renderTasks returns the renderings of fs in the order they start: every
+// format of the dear figures first (Figure.Dear; the maps, whose PNG and
+// PDF each cost about a quarter of the report's drawing at 60 extents),
+// then the others' SVGs, PNGs and PDFs (renderOrder). Started last, a
+// dear rendering would keep one core busy after the other ran out of
+// work; started first, the rest fills the other core meanwhile. The order
+// changes when a file is ready, never its bytes.
+func renderTasks(fs []figure) []renderTask {
+	var ts []renderTask
+	for _, dear := range []bool{true, false} {
+		for _, format := range renderOrder {
+			for k, f := range fs {
+				if f.Dear == dear {
+					ts = append(ts, renderTask{k, format})
+				}
+			}
+		}
+	}
+	return ts
+}
 
 // writeFigures renders every figure of fs as SVG, PDF and PNG into figDir
 // and, once every SVG is drawn, calls withSVGs with them beside the other
@@ -123,32 +153,31 @@ func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) er
 	var svgsLeft, all sync.WaitGroup
 	svgsLeft.Add(len(fs))
 	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
-	for _, format := range renderOrder {
+	for _, t := range renderTasks(fs) {
+		k, f, format := t.fig, fs[t.fig], t.format
 		j := slices.Index(figureFormats, format)
-		for k, f := range fs {
-			all.Add(1)
-			sem <- struct{}{}
-			go func() {
-				defer all.Done()
-				var data []byte
-				err := recovered("figure "+f.Name+" ("+format+")", func() (err error) {
-					data, err = render(f, format)
-					return err
-				})
-				<-sem
-				if err == nil {
-					err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
-				}
-				if format != "svg" { // the page inlines the SVGs
-					outBuffers.put(data)
-				}
-				errs[k][j] = err
-				if format == "svg" {
-					svgs[k] = renderedFigure{fig: f, svg: data}
-					svgsLeft.Done()
-				}
-			}()
-		}
+		all.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer all.Done()
+			var data []byte
+			err := recovered("figure "+f.Name+" ("+format+")", func() (err error) {
+				data, err = render(f, format)
+				return err
+			})
+			<-sem
+			if err == nil {
+				err = writeAtomic(filepath.Join(figDir, f.Name+"."+format), data)
+			}
+			if format != "svg" { // the page inlines the SVGs
+				outBuffers.put(data)
+			}
+			errs[k][j] = err
+			if format == "svg" {
+				svgs[k] = renderedFigure{fig: f, svg: data}
+				svgsLeft.Done()
+			}
+		}()
 	}
 	var pageErr error
 	all.Add(1)

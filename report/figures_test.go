@@ -615,3 +615,21 @@ func TestFigureEdgeCases(t *testing.T) {
 		})
 	}
 }
+
+// TestRenderTasks: every rendering of every figure once; the dear
+// figures' (the maps) first, then the others' SVGs, PNGs and PDFs, each
+// in figure order.
+func TestRenderTasks(t *testing.T) {
+	fs := []figure{{Name: "a"}, {Name: "m", Dear: true}, {Name: "b"}}
+	got := renderTasks(fs)
+	want := []renderTask{{1, "svg"}, {1, "png"}, {1, "pdf"}, {0, "svg"}, {2, "svg"}, {0, "png"}, {2, "png"}, {0, "pdf"}, {2, "pdf"}}
+	if !slices.Equal(got, want) {
+		t.Fatalf("renderTasks = %v, want %v", got, want)
+	}
+	r := analyzedSample(t)
+	for _, f := range figures(r) {
+		if f.Dear != (f.Name == mapFigureName) {
+			t.Errorf("figure %s: Dear %v", f.Name, f.Dear)
+		}
+	}
+}

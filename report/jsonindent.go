@@ -15,6 +15,21 @@ import "bytes"
 // write it (no whitespace between tokens); only strings need scanning, for
 // their closing quote.
 func indentJSON(dst, src []byte) []byte {
+	var in indenter
+	return in.indent(dst, src)
+}
+
+// indenter is indentJSON over a document given in pieces: indent appends
+// each piece indented, carrying the nesting between calls, so that the
+// pieces together come out as indentJSON of their concatenation. A piece
+// must end between tokens (a string, number or literal is never split).
+type indenter struct {
+	depth int
+	open  bool // the last token opened an object or array
+}
+
+// indent appends to dst the piece src indented (see indenter).
+func (in *indenter) indent(dst, src []byte) []byte {
 	const spaces = "\n                                                                " // a newline and 64 spaces
 	newline := func(dst []byte, depth int) []byte {
 		if n := 1 + 2*depth; n <= len(spaces) {
@@ -26,8 +41,7 @@ func indentJSON(dst, src []byte) []byte {
 		}
 		return dst
 	}
-	depth := 0
-	open := false // the last token opened an object or array
+	depth, open := in.depth, in.open
 	for i := 0; i < len(src); {
 		c := src[i]
 		if open && c != '}' && c != ']' {
@@ -85,6 +99,7 @@ func indentJSON(dst, src []byte) []byte {
 			i = j
 		}
 	}
+	in.depth, in.open = depth, open
 	return dst
 }
 

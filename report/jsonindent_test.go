@@ -8,7 +8,10 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
+
+	"areasweep/report/outfile"
 )
 
 // referenceEncode is Encode as it was: encoding/json's encoder indenting.
@@ -78,6 +81,10 @@ func TestEncodeSameAsEncodingJSON(t *testing.T) {
 			r.Scores[0].Boyce = nil
 		}
 		check("edited")
+		// Top-level slices nil and empty, the omitempty fields absent.
+		r.Warnings, r.Paired, r.Curves, r.Rings = nil, []Paired{}, nil, []Ring{}
+		r.Preview, r.Sensitivity = nil, nil
+		check("nil and empty")
 	}
 }
 
@@ -146,23 +153,118 @@ func TestIndentJSONSameAsIndent(t *testing.T) {
 	}
 }
 
-// TestIndentingWriter: one Write gives that piece indented; a second
-// Write leaves nothing valid (Encode then indents the whole instead).
-func TestIndentingWriter(t *testing.T) {
-	src := []byte(`{"a":[1,{"b":"x"}],"c":{}}` + "\n")
-	var w indentingWriter
-	if _, err := w.Write(src); err != nil {
+// TestIndenterPieces: a document indented in pieces cut between any two
+// tokens comes out as indentJSON of the whole.
+func TestIndenterPieces(t *testing.T) {
+	src := []byte(`{"a":[1,{"b":"x,]}"},[],{}],"c":{},"d":[[["\\",null,true]]],"e":-1.5e-7}` + "\n")
+	want := indentJSON(nil, src)
+	// Token boundaries: before each delimiter and after it, outside strings.
+	var cuts []int
+	inStr := false
+	for i := 0; i < len(src); i++ {
+		switch c := src[i]; {
+		case inStr && c == '\\':
+			i++
+		case c == '"':
+			if !inStr {
+				cuts = append(cuts, i)
+			} else {
+				cuts = append(cuts, i+1)
+			}
+			inStr = !inStr
+		case !inStr && jsonDelim[c]:
+			cuts = append(cuts, i, i+1)
+		}
+	}
+	rng := rand.New(rand.NewPCG(3, 4))
+	for range 500 {
+		var in indenter
+		var got []byte
+		prev := 0
+		for _, c := range cuts {
+			if c > prev && rng.IntN(3) == 0 {
+				got = in.indent(got, src[prev:c])
+				prev = c
+			}
+		}
+		got = in.indent(got, src[prev:])
+		if !bytes.Equal(got, want) {
+			t.Fatalf("in pieces: %s", firstDiff(got, want))
+		}
+	}
+}
+
+// TestResultsFieldsPlain: every field of Results is one EncodeTo encodes
+// piecewise (else it would fall back to encoding the whole at once), and
+// the big slices are encoded element by element.
+func TestResultsFieldsPlain(t *testing.T) {
+	fs := resultsFields()
+	if fs == nil {
+		t.Fatal("resultsFields is nil: Results has a field EncodeTo does not encode piecewise")
+	}
+	keys := map[string]resultsField{}
+	for _, f := range fs {
+		keys[string(f.key)] = f
+	}
+	for _, k := range []string{`"scores":`, `"curves":`, `"paired":`, `"points":`} {
+		if f, ok := keys[k]; !ok || !f.elements {
+			t.Errorf("field %s: present %v, element by element %v", k, ok, f.elements)
+		}
+	}
+	if f := keys[`"preview":`]; !f.omitEmpty || f.elements {
+		t.Errorf("preview: omitempty %v, elements %v; want true, false", f.omitEmpty, f.elements)
+	}
+}
+
+// TestEncodeToChunks: a large results file is written in several writes,
+// each about encodeChunk, whose concatenation is Encode's bytes.
+func TestEncodeToChunks(t *testing.T) {
+	r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
 		t.Fatal(err)
 	}
-	var want bytes.Buffer
-	if err := json.Indent(&want, src, "", "  "); err != nil {
+	for len(r.Scores) < 2000 {
+		r.Scores = append(r.Scores, r.Scores...)
+	}
+	var w countingWriter
+	if err := r.EncodeTo(&w); err != nil {
 		t.Fatal(err)
 	}
-	if w.writes != 1 || !bytes.Equal(w.out, want.Bytes()) {
-		t.Fatalf("one write: got %q (%d writes), want %q", w.out, w.writes, want.Bytes())
+	if want := referenceEncode(t, r); !bytes.Equal(w.buf.Bytes(), want) {
+		t.Fatalf("EncodeTo %s", firstDiff(w.buf.Bytes(), want))
 	}
-	w.Write(src)
-	if w.writes != 2 || w.out != nil {
-		t.Fatalf("two writes: got %q (%d writes), want nothing", w.out, w.writes)
+	if n := w.buf.Len(); w.writes < n/(2*encodeChunk) || w.writes > n/encodeChunk+1 {
+		t.Errorf("%d bytes in %d writes, want about %d", n, w.writes, n/encodeChunk)
+	}
+}
+
+type countingWriter struct {
+	buf    bytes.Buffer
+	writes int
+}
+
+func (w *countingWriter) Write(p []byte) (int, error) {
+	w.writes++
+	return w.buf.Write(p)
+}
+
+// TestEncodeToError: a value encoding/json refuses (NaN) makes EncodeTo
+// fail with encoding/json's reason, as Encode did, and a results.json
+// written through outfile.WriteFrom is then not left behind.
+func TestEncodeToError(t *testing.T) {
+	r, err := Load(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r.Scores[len(r.Scores)-1].AreaKm2 = math.NaN()
+	if _, err := r.Encode(); err == nil || !strings.Contains(err.Error(), "unsupported value: NaN") {
+		t.Errorf("Encode with a NaN: %v, want encoding/json's unsupported value", err)
+	}
+	path := filepath.Join(t.TempDir(), "results.json")
+	if err := outfile.WriteFrom(path, 0o666, r.EncodeTo); err == nil {
+		t.Error("WriteFrom of results with a NaN succeeded")
+	}
+	if _, err := os.Stat(path); !os.IsNotExist(err) {
+		t.Errorf("results.json left after a failed encoding: %v", err)
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
 )
 
 // TestPNGTextSame draws every figure of the sample study on the PNG
@@ -88,7 +89,7 @@ func TestPaddingBoxes(t *testing.T) {
 				}
 				sc.GlyphStyle.Radius = vg.Points(radii[i])
 				if wrap {
-					p.Add(paddingLine{l}, paddingScatter{sc})
+					p.Add(newPaddingLine(l), newPaddingScatter(sc))
 				} else {
 					p.Add(l, sc)
 				}
@@ -102,6 +103,34 @@ func TestPaddingBoxes(t *testing.T) {
 		c := draw.New(newPNGCanvas(80*vg.Millimeter, 60*vg.Millimeter))
 		if a, b := plain.DataCanvas(c).Rectangle, padded.DataCanvas(c).Rectangle; a != b {
 			t.Errorf("%d curves: data area %v with the padding wrappers, %v without", n, b, a)
+		}
+		// Other ranges after the boxes were kept for the first ones.
+		for _, p := range []*plot.Plot{plain, padded} {
+			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0.1, 0.6, -0.2, 0.9
+		}
+		if a, b := plain.DataCanvas(c).Rectangle, padded.DataCanvas(c).Rectangle; a != b {
+			t.Errorf("%d curves, ranges changed: data area %v with the padding wrappers, %v without", n, b, a)
+		}
+		// The wrappers draw the same files (paddingLine.Plot makes the
+		// calls plotter.Line.Plot makes), lines clipped at the new ranges.
+		var files [2][2][]byte
+		for k, p := range []*plot.Plot{plain, padded} {
+			svg := vgsvg.New(80*vg.Millimeter, 60*vg.Millimeter)
+			p.Draw(draw.New(svg))
+			var b bytes.Buffer
+			if _, err := svg.WriteTo(&b); err != nil {
+				t.Fatal(err)
+			}
+			pc := newPNGCanvas(80*vg.Millimeter, 60*vg.Millimeter)
+			p.Draw(draw.New(pc))
+			png, err := encodePNG(pc.img, pngDPI)
+			if err != nil {
+				t.Fatal(err)
+			}
+			files[k] = [2][]byte{b.Bytes(), bytes.Clone(png)}
+		}
+		if !bytes.Equal(files[0][0], files[1][0]) || !bytes.Equal(files[0][1], files[1][1]) {
+			t.Errorf("%d curves: the wrappers draw other files (SVG same %v, PNG same %v)", n, bytes.Equal(files[0][0], files[1][0]), bytes.Equal(files[0][1], files[1][1]))
 		}
 	}
 }

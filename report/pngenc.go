@@ -9,6 +9,7 @@ import (
 	"image"
 	"image/png"
 	"math"
+	"runtime"
 	"sync"
 )
 
@@ -57,10 +58,10 @@ func encodeRGB(img *image.RGBA, dpi int) (data []byte, opaque bool, err error) {
 	idat := len(out)
 	out = append(out, "\x00\x00\x00\x00IDAT"...)
 	aw := &appendWriter{b: out}
-	zw := zlibWriters.Get().(*zlib.Writer)
+	zw := zlibWriters.get()
 	defer func() {
 		zw.Reset(nil) // drop aw's buffer
-		zlibWriters.Put(zw)
+		zlibWriters.put(zw)
 	}()
 	zw.Reset(aw)
 	row := make([]byte, 1+3*w) // filter type 0 (none), then R, G, B per pixel
@@ -93,11 +94,39 @@ func encodeRGB(img *image.RGBA, dpi int) (data []byte, opaque bool, err error) {
 }
 
 // zlibWriters are deflate writers at the fastest level, reset for each
-// PNG: a new one takes about a megabyte of tables and windows.
-var zlibWriters = sync.Pool{New: func() any {
+// PNG: a new one takes about a megabyte of tables and windows. They are
+// kept in a list of their own rather than a sync.Pool, which the garbage
+// collector empties (a report collects several times while its PNGs are
+// encoded, and each new writer was a megabyte of fresh memory); no more
+// are kept than PNGs are encoded at once (GOMAXPROCS).
+var zlibWriters writerList
+
+type writerList struct {
+	mu   sync.Mutex
+	free []*zlib.Writer
+}
+
+// get returns a free writer, or a new one.
+func (l *writerList) get() *zlib.Writer {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if n := len(l.free); n > 0 {
+		zw := l.free[n-1]
+		l.free = l.free[:n-1]
+		return zw
+	}
 	zw, _ := zlib.NewWriterLevel(nil, zlib.BestSpeed) // errs only on an invalid level
 	return zw
-}}
+}
+
+// put keeps zw, reset, for a later get.
+func (l *writerList) put(zw *zlib.Writer) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if len(l.free) < runtime.GOMAXPROCS(0) {
+		l.free = append(l.free, zw)
+	}
+}
 
 // appendWriter appends what is written to b.
 type appendWriter struct{ b []byte }

@@ -2,9 +2,11 @@ package report
 
 import (
 	"bytes"
+	"compress/zlib"
 	"image"
 	"image/color"
 	"image/png"
+	"runtime"
 	"testing"
 
 	"gonum.org/v1/plot/vg/draw"
@@ -78,4 +80,49 @@ func diff(a, b uint32) uint32 {
 		return a - b
 	}
 	return b - a
+}
+
+// TestZlibWritersKept: a writer given back is the one handed out next,
+// even after garbage collections (a sync.Pool would drop it), at most
+// GOMAXPROCS are kept, and a PNG encoded again with a kept writer has the
+// same bytes.
+func TestZlibWritersKept(t *testing.T) {
+	img := image.NewRGBA(image.Rect(0, 0, 50, 40))
+	for i := range img.Pix {
+		img.Pix[i] = uint8(i * 7)
+		if i%4 == 3 {
+			img.Pix[i] = 0xff
+		}
+	}
+	first, err := encodePNG(img, pngDPI)
+	if err != nil {
+		t.Fatal(err)
+	}
+	first = bytes.Clone(first)
+	zw := zlibWriters.get()
+	zlibWriters.put(zw)
+	runtime.GC()
+	runtime.GC()
+	if got := zlibWriters.get(); got != zw {
+		t.Error("the writer given back was not kept across garbage collections")
+	} else {
+		zlibWriters.put(got)
+	}
+	again, err := encodePNG(img, pngDPI)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(first, again) {
+		t.Error("a PNG encoded again with a kept writer has other bytes")
+	}
+	var ws []*zlib.Writer
+	for range runtime.GOMAXPROCS(0) + 3 {
+		ws = append(ws, zlibWriters.get())
+	}
+	for _, w := range ws {
+		zlibWriters.put(w)
+	}
+	if n := len(zlibWriters.free); n != runtime.GOMAXPROCS(0) {
+		t.Errorf("%d writers kept, want GOMAXPROCS = %d", n, runtime.GOMAXPROCS(0))
+	}
 }

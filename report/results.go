@@ -2,11 +2,15 @@ package report
 
 import (
 	"bytes"
+	"encoding"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"reflect"
+	"strings"
+	"sync"
 
 	"areasweep/extent/vocab"
 	"areasweep/metrics"
@@ -524,42 +528,194 @@ func jsonCause(err error) string {
 // newline, keys in struct order. The bytes are those of a json.Encoder with
 // SetIndent("", "  ") (HTML characters escaped); the values are encoded by
 // encoding/json and indented by indentJSON, which is faster than the
-// encoder's own indenting (TestEncodeSameAsEncodingJSON).
+// encoder's own indenting (TestEncodeSameAsEncodingJSON). EncodeTo
+// writes the same bytes to a writer.
 func (r *Results) Encode() ([]byte, error) {
-	// The encoder hands its whole output to one Write; indenting it there
-	// saves copying 9 MB (60 extents) into a buffer of fresh memory first.
-	w := &indentingWriter{}
-	if err := json.NewEncoder(w).Encode(r); err != nil {
-		return nil, fmt.Errorf("report: encode results: %w", err)
-	}
-	if w.writes == 1 {
-		return w.out, nil
-	}
-	// Written in pieces (not what encoding/json does): indent the whole.
 	var buf bytes.Buffer
-	if err := json.NewEncoder(&buf).Encode(r); err != nil {
-		return nil, fmt.Errorf("report: encode results: %w", err)
+	if err := r.EncodeTo(&buf); err != nil {
+		return nil, err
 	}
-	return indentJSON(make([]byte, 0, buf.Len()*7/4), buf.Bytes()), nil
+	return buf.Bytes(), nil
 }
 
-// indentingWriter indents (indentJSON) what a json.Encoder writes when it
-// writes it in one piece: out is that piece indented, writes the number
-// of Write calls (out is valid only when it is 1).
-type indentingWriter struct {
-	out    []byte
-	writes int
+// EncodeTo writes Encode's bytes to w, in pieces of about
+// encodeChunk bytes.
+//
+// Why in pieces: a json.Encoder marshals the whole value into one buffer
+// grown by doubling before it writes anything (9 MB compact, 14 MB
+// indented at 60 extents; each doubling fresh memory, page faults and a
+// copy). Here each top-level field is encoded on its own, and a slice
+// field (the scores, curves, paired records, ...) element by element, by
+// one json.Encoder into one reused buffer, the pieces joined as
+// encoding/json joins the fields of a struct and the elements of a slice
+// (resultsFields) and indented as they come (indenter), so nothing larger
+// than the largest single field besides the slices (the sensitivity
+// analysis, under 1 MB) is held.
+func (r *Results) EncodeTo(w io.Writer) error {
+	fields := resultsFields()
+	if fields == nil { // a field the piecewise encoding does not handle
+		var buf bytes.Buffer
+		if err := json.NewEncoder(&buf).Encode(r); err != nil {
+			return fmt.Errorf("report: encode results: %w", err)
+		}
+		_, err := w.Write(indentJSON(make([]byte, 0, buf.Len()*7/4), buf.Bytes()))
+		return err
+	}
+	e := &pieceEncoder{w: w, out: make([]byte, 0, encodeChunk+encodeChunk/2)}
+	e.enc = json.NewEncoder(&e.piece)
+	rv := reflect.ValueOf(r).Elem()
+	e.raw([]byte("{"))
+	first := true
+	for _, f := range fields {
+		fv := rv.Field(f.index)
+		if f.omitEmpty && isEmptyJSONValue(fv) {
+			continue
+		}
+		if !first {
+			e.raw([]byte(","))
+		}
+		first = false
+		e.raw(f.key)
+		if f.elements && !fv.IsNil() {
+			e.raw([]byte("["))
+			for i := range fv.Len() {
+				if i > 0 {
+					e.raw([]byte(","))
+				}
+				// A pointer to the element: addressable, as an element
+				// of a slice is to encoding/json.
+				e.value(fv.Index(i).Addr().Interface())
+			}
+			e.raw([]byte("]"))
+		} else {
+			e.value(fv.Addr().Interface())
+		}
+	}
+	e.raw([]byte("}\n"))
+	e.flush()
+	if e.err != nil {
+		return fmt.Errorf("report: encode results: %w", e.err)
+	}
+	return nil
 }
 
-func (w *indentingWriter) Write(p []byte) (int, error) {
-	w.writes++
-	if w.writes == 1 {
-		// Indenting made a 60-extent study's file 1.55 times as large.
-		w.out = indentJSON(make([]byte, 0, len(p)*7/4), p)
-	} else {
-		w.out = nil
+// encodeChunk is about the size of EncodeTo's writes.
+const encodeChunk = 256 << 10
+
+// pieceEncoder is EncodeTo's state: the indented output not yet written,
+// the encoder and its reused buffer, the first error.
+type pieceEncoder struct {
+	w     io.Writer
+	out   []byte
+	ind   indenter
+	piece bytes.Buffer
+	enc   *json.Encoder
+	err   error
+}
+
+// raw appends compact JSON text, indented.
+func (e *pieceEncoder) raw(b []byte) {
+	e.out = e.ind.indent(e.out, b)
+	if len(e.out) >= encodeChunk {
+		e.flush()
 	}
-	return len(p), nil
+}
+
+// value appends the encoding of v, indented.
+func (e *pieceEncoder) value(v any) {
+	if e.err != nil {
+		return
+	}
+	e.piece.Reset()
+	if err := e.enc.Encode(v); err != nil {
+		e.err = err
+		return
+	}
+	e.raw(bytes.TrimSuffix(e.piece.Bytes(), []byte("\n"))) // the newline Encode ends a value with
+}
+
+// flush writes what is held.
+func (e *pieceEncoder) flush() {
+	if e.err == nil && len(e.out) > 0 {
+		_, e.err = e.w.Write(e.out)
+	}
+	e.out = e.out[:0]
+}
+
+// resultsField is a field of Results as encoding/json encodes it: its
+// index, its key as written ("name":), whether it has omitempty and
+// whether it is a slice encoded element by element (not []byte, which
+// encoding/json writes in base64, nor a slice type with its own
+// marshaller).
+type resultsField struct {
+	index     int
+	key       []byte
+	omitEmpty bool
+	elements  bool
+}
+
+// resultsFields returns the fields of Results that encoding/json encodes,
+// in its order, or nil when Results has a field whose encoding EncodeTo
+// does not reproduce (embedded, unexported with a tag, a json option
+// other than omitempty, a duplicate or unusual key, or a Results with
+// its own MarshalJSON); TestResultsFieldsPlain keeps it from being nil.
+var resultsFields = sync.OnceValue(func() []resultsField {
+	rt := reflect.TypeFor[Results]()
+	if marshals(rt) {
+		return nil
+	}
+	var fs []resultsField
+	seen := map[string]bool{}
+	for i := range rt.NumField() {
+		f := rt.Field(i)
+		tag, hasTag := f.Tag.Lookup("json")
+		if f.Anonymous || (!f.IsExported() && hasTag) {
+			return nil
+		}
+		if !f.IsExported() || tag == "-" {
+			continue
+		}
+		name, opts, _ := strings.Cut(tag, ",")
+		if name == "" {
+			name = f.Name
+		}
+		if (opts != "" && opts != "omitempty") || seen[name] || strings.ContainsAny(name, "\"\\<>&") {
+			return nil
+		}
+		seen[name] = true
+		key, err := json.Marshal(name)
+		if err != nil {
+			return nil
+		}
+		elements := f.Type.Kind() == reflect.Slice && f.Type.Elem().Kind() != reflect.Uint8 && !marshals(f.Type)
+		fs = append(fs, resultsField{index: i, key: append(key, ':'), omitEmpty: opts == "omitempty", elements: elements})
+	}
+	return fs
+})
+
+// marshals tells whether t or *t has a method through which
+// encoding/json encodes it (MarshalJSON or MarshalText).
+func marshals(t reflect.Type) bool {
+	for _, m := range []reflect.Type{reflect.TypeFor[json.Marshaler](), reflect.TypeFor[encoding.TextMarshaler]()} {
+		if t.Implements(m) || reflect.PointerTo(t).Implements(m) {
+			return true
+		}
+	}
+	return false
+}
+
+// isEmptyJSONValue is encoding/json's test for omitempty: false, 0, a nil
+// pointer or interface, an empty array, map, slice or string.
+func isEmptyJSONValue(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Array, reflect.Map, reflect.Slice, reflect.String:
+		return v.Len() == 0
+	case reflect.Bool, reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64, reflect.Uintptr,
+		reflect.Float32, reflect.Float64, reflect.Interface, reflect.Pointer:
+		return v.IsZero()
+	}
+	return false
 }
 
 // IsNull reports whether m is a null rather than a model under evaluation.

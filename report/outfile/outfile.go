@@ -7,6 +7,7 @@ package outfile
 
 import (
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -41,11 +42,22 @@ func IsTemp(name string) bool {
 // Write writes data to path atomically with mode perm &^ Umask (0o666 for
 // a data file, 0o777 for a script).
 func Write(path string, data []byte, perm os.FileMode) error {
+	return WriteFrom(path, perm, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
+
+// WriteFrom is Write of what fill writes to the writer it is given (the
+// temporary file, unbuffered), for a file made in pieces without holding
+// it whole. When fill fails nothing is left, and its error is returned
+// with the path.
+func WriteFrom(path string, perm os.FileMode, fill func(w io.Writer) error) error {
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+tempInfix+"*")
 	if err != nil {
 		return fmt.Errorf("write %s: %w", path, err)
 	}
-	_, err = tmp.Write(data)
+	err = fill(tmp)
 	if err == nil {
 		err = tmp.Sync()
 	}

@@ -2,6 +2,7 @@ package outfile
 
 import (
 	"errors"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -44,6 +45,41 @@ func TestWrite(t *testing.T) {
 	err := Write(filepath.Join(dir, "missing", "b.txt"), []byte("x"), 0o666)
 	if !errors.Is(err, fs.ErrNotExist) {
 		t.Errorf("write into a missing folder: %v, want a not-exist cause", err)
+	}
+}
+
+// TestWriteFrom: the file holds what fill wrote in several pieces; a
+// failing fill leaves neither the file nor a temporary file, keeps an
+// older file as it was, and its error is in the chain.
+func TestWriteFrom(t *testing.T) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "a.json")
+	if err := WriteFrom(p, 0o666, func(w io.Writer) error {
+		for _, s := range []string{"{", `"a":`, "1}\n"} {
+			if _, err := io.WriteString(w, s); err != nil {
+				return err
+			}
+		}
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if b, err := os.ReadFile(p); err != nil || string(b) != "{\"a\":1}\n" {
+		t.Fatalf("read %q %v", b, err)
+	}
+	boom := errors.New("boom")
+	err := WriteFrom(p, 0o666, func(w io.Writer) error {
+		io.WriteString(w, "half")
+		return boom
+	})
+	if !errors.Is(err, boom) {
+		t.Errorf("failing fill: %v, want boom in the chain", err)
+	}
+	if b, _ := os.ReadFile(p); string(b) != "{\"a\":1}\n" {
+		t.Errorf("failing fill changed the file: %q", b)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+		t.Errorf("folder holds %d entries, want 1 (no temporary file left)", len(entries))
 	}
 }
 
