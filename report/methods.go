@@ -134,7 +134,7 @@ func methodsText(r *Results) string {
 	}
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
+	fmt.Fprintf(&b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
 	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records was not judged.",
 		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
@@ -164,6 +164,24 @@ func methodsText(r *Results) string {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
+}
+
+// pairedWhat names the paired differences the run formed: between the
+// extents of one model always, between models on one extent only when
+// there are two models or more, and between a model and a null when a
+// null was scored.
+func pairedWhat(s *Sensitivity) string {
+	parts := []string{"between extents of one model"}
+	if len(s.ModelNames) >= 2 {
+		parts = append(parts, "between models on one extent")
+	}
+	if len(s.AboveNull) > 0 {
+		parts = append(parts, "between a model and a null on one extent")
+	}
+	if len(parts) == 1 {
+		return "Differences " + parts[0]
+	}
+	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ")
 }
 
 func plural(n int) string {
@@ -224,7 +242,9 @@ func resultNumbers(r *Results) string {
 		out = strings.Join(parts, ". ") + "."
 	}
 	for _, rk := range s.Rankings {
-		if rk.Metric == "auc" && rk.Extents > 0 {
+		if rk.Metric == "auc" && rk.identical() {
+			out += fmt.Sprintf(" By AUC, %s and %s scored the same on all %d extent%s (every paired difference 0).", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
 	}
@@ -351,24 +371,37 @@ func reviewerText(r *Results) string {
 		robust, sensitive, undetermined = nil, nil, nil
 		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
+	// With one model, "for at least one model" and "for every model"
+	// would say less than the numbers: name it.
+	some, every := "for at least one model", "for every model"
+	if len(s.ModelNames) == 1 {
+		some, every = "for "+s.ModelNames[0], "for "+s.ModelNames[0]
+	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
+		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
 	}
 	if len(robust) > 0 {
-		fmt.Fprintf(&b, "%s stayed within the tolerance for every model. ", upperFirst(joinList(robust)))
+		fmt.Fprintf(&b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
 	}
 	if len(undetermined) > 0 {
 		fmt.Fprintf(&b, "For %s our test records are too few (or the score undefined) to tell. ", joinList(undetermined))
 	}
 	for _, rk := range s.Rankings {
-		if rk.Metric == "auc" && rk.Extents > 0 {
+		if rk.Metric == "auc" && rk.identical() {
+			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse)
 		}
 	}
 	b.WriteString(reviewerNullText(s))
-	b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	if len(s.ModelNames) >= 2 {
+		b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	} else {
+		// One model: there is no model comparison to restrict.
+		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	}
 	if s.Independence.Warn {
-		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so all scores are likely optimistic.", pct(s.Independence.NearShare), NearCells)
+		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()
 }
@@ -385,9 +418,9 @@ func reviewerNullText(s *Sensitivity) string {
 		return ""
 	}
 	type byNull struct {
-		name, kind string
-		beat, not  []string
-		few        []string
+		name, kind        string
+		above, not, below []string
+		few               []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -399,14 +432,16 @@ func reviewerNullText(s *Sensitivity) string {
 			index[an.Null] = n
 			ns = append(ns, n)
 		}
-		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
-		if an.BaseReading == ReadingTooFew {
+		// The number is the difference from the null, not the AUC.
+		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		switch an.BaseReading {
+		case ReadingTooFew:
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
-			continue
-		}
-		if an.BaseReading == ReadingAbove {
-			n.beat = append(n.beat, part)
-		} else {
+		case ReadingAbove:
+			n.above = append(n.above, part)
+		case ReadingBelow:
+			n.below = append(n.below, part)
+		default:
 			n.not = append(n.not, part)
 		}
 	}
@@ -420,20 +455,34 @@ func reviewerNullText(s *Sensitivity) string {
 	}
 	var b strings.Builder
 	fmt.Fprintf(&b, "We also scored %s on the same extents and test records. ", joinList(what))
+	// aucOf is "the AUC of a is" or "the AUCs of a and b are".
+	aucOf := func(models []string) string {
+		if len(models) > 1 {
+			return "the AUCs of " + joinList(models) + " are"
+		}
+		return "the AUC of " + models[0] + " is"
+	}
 	for _, n := range ns {
-		if len(n.beat) > 0 {
-			fmt.Fprintf(&b, "On the base extent the AUC of %s is above that of %s beyond noise. ", joinList(n.beat), n.name)
+		holds := "what " + n.name + " holds"
+		if n.kind == NullDistance {
+			holds = "the geography of the records"
+		}
+		if len(n.above) > 0 {
+			fmt.Fprintf(&b, "On the base extent %s above that of %s beyond noise. ", aucOf(n.above), n.name)
+		}
+		if len(n.below) > 0 {
+			// Wholly below 0: the null ranks the test records better.
+			who := "the model does"
+			if len(n.below) > 1 {
+				who = "the models do"
+			}
+			fmt.Fprintf(&b, "On the base extent %s below that of %s beyond noise, so on that extent %s alone ranks the test records above the background better than %s. ",
+				aucOf(n.below), n.name, holds, who)
 		}
 		if len(n.not) > 0 {
-			verb := "does"
-			if len(n.not) > 1 {
-				verb = "do"
-			}
-			lacks := "what " + n.name + " holds"
-			if n.kind == NullDistance {
-				lacks = "the geography of the records"
-			}
-			fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed that of %s beyond noise, so on that extent AUC shows no skill beyond %s. ", joinList(n.not), verb, n.name, lacks)
+			// An interval that includes 0: absence of evidence, not
+			// evidence that the model has no skill.
+			fmt.Fprintf(&b, "On the base extent %s not above that of %s beyond noise, so on that extent AUC gives no evidence of skill beyond %s. ", aucOf(n.not), n.name, holds)
 		}
 		if len(n.few) > 0 {
 			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we judge no difference on fewer than %d). ", joinList(n.few), n.name, MinPairedPoints)

@@ -275,9 +275,9 @@ func TestReviewerNulls(t *testing.T) {
 		want, notWant []string
 	}{
 		{"distance-only null", NullDistance,
-			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no skill beyond the geography of the records"}, nil},
+			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no evidence of skill beyond the geography of the records"}, nil},
 		{"user null", "user",
-			[]string{"We also scored the null " + DistanceNullName + " on", "no skill beyond what " + DistanceNullName + " holds"},
+			[]string{"We also scored the null " + DistanceNullName + " on", "no evidence of skill beyond what " + DistanceNullName + " holds"},
 			[]string{"knows only where the training records are", "geography", "Hijmans"}},
 	}
 	for _, c := range cases {
@@ -632,7 +632,7 @@ func TestChainSentenceAgainstTheChange(t *testing.T) {
 			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.75, AUCOuter: 0.78, AUCRing: 0.81, AUCRingDefined: true, Change: 0.03, Share: 3},
 			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.78, AUCOuter: 0.81, AUCRing: 0.84, AUCRingDefined: true, Change: 0.03, Share: 3},
 		}}
-	got := chainSentence(&cs)
+	got := chainSentence(&cs, "model")
 	if strings.Contains(got, "-500% of the gain comes") || !strings.Contains(got, "the largest step goes against the gain (-500% of it): the ring b minus a") {
 		t.Errorf("%s", got)
 	}
@@ -877,4 +877,252 @@ func checkWords(t *testing.T, what, text string, want, notWant []string) {
 			t.Errorf("%s says %q:\n%s", what, w, text)
 		}
 	}
+}
+
+// The cases below come from studies the demo does not cover: a model
+// below the distance-only null, a single model with a null of the user's,
+// 8 and 15 test points, test points beside the training points, an
+// extent without test points, copies of one model and a constant model.
+
+// TestNullGapEndsNamed: the extents the model-minus-null gap is described
+// between are named for what they are. When the difference is undefined
+// on the smallest extent, the next one is "the smallest extent where it is
+// defined", not "the smallest extent"; an end resting on fewer than 10
+// common test points says so; and when no extent has 10, the counts of
+// "above, within, below" (all 0) give way to saying that no gap is read.
+func TestNullGapEndsNamed(t *testing.T) {
+	smallest := func(r *Results) string {
+		id, lo := "", math.Inf(1)
+		for _, e := range r.Extents {
+			if e.Status == vocab.StatusOK && findScore(r, "good", e.ID) != nil && e.AreaKm2 < lo {
+				id, lo = e.ID, e.AreaKm2
+			}
+		}
+		return id
+	}
+	cases := []struct {
+		name          string
+		build         func(r *Results, small string)
+		want, notWant []string
+	}{
+		{name: "undefined on the smallest extent",
+			build: func(r *Results, small string) {
+				setPaired(r, "auc", PairedKindNull, "good", small, func(p *Paired) { p.Defined = false })
+			},
+			want:    []string{"(the smallest extent where it is defined)", "(the largest)"},
+			notWant: []string{"(the smallest extent) to"}},
+		{name: "too few common test points on the smallest extent",
+			build: func(r *Results, small string) {
+				setPaired(r, "auc", PairedKindNull, "good", small, func(p *Paired) { p.CommonPoints = 5 })
+			},
+			want: []string{"(the smallest extent, on 5 common test points, not read)"}},
+		{name: "too few common test points everywhere",
+			build: func(r *Results, small string) {
+				for i := range r.Paired {
+					if r.Paired[i].Kind == PairedKindNull {
+						r.Paired[i].CommonPoints = 8
+					}
+				}
+			},
+			want:    []string{"(the largest, on 8 common test points, not read)", "no extent has the 10 common test points we read a gap on (our cut-off)"},
+			notWant: []string{"above the null beyond noise on 0, within noise on 0 and below on 0"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			c.build(r, smallest(r))
+			s := analyzed(t, r)
+			for _, an := range s.AboveNull {
+				if an.Metric == "auc" && an.Model == "good" {
+					checkWords(t, "sentence", an.Sentence, c.want, c.notWant)
+					checkWords(t, "headline", s.Headline, c.want[:1], c.notWant)
+					return
+				}
+			}
+			t.Fatal("no AUC comparison of good with the null")
+		})
+	}
+}
+
+// TestTooFewAllZero: a verdict left undetermined by differences on too
+// few test points, every difference being 0, does not name one extent's
+// "+0.000" as the largest.
+func TestTooFewAllZero(t *testing.T) {
+	r := loadSample(t)
+	const metric = "omission_minimum_training_presence"
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Diff, p.Low, p.High = 0, 0, 0
+		}
+	}
+	if setPaired(r, metric, PairedKindExtent, "good", "hull", func(p *Paired) { p.CommonPoints = 6 }) != 1 {
+		t.Fatal("no record of good on hull")
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(metric, "good")
+	if mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"although every difference from base is 0", "Not judged, on fewer than 10 common test points (our cut-off): hull (6)"},
+		[]string{"the largest difference from base is +0.000"})
+}
+
+// TestIdenticalModels: two models whose every paired difference and its
+// interval are 0 (copies of one raster) "score the same"; "within noise"
+// would say there is noise between them.
+func TestIdenticalModels(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" {
+			p.Diff, p.Low, p.High, p.SE = 0, 0, 0, 0
+		}
+	}
+	s := analyzed(t, r)
+	var rk *ModelRanking
+	for i := range s.Rankings {
+		if s.Rankings[i].Metric == "auc" && s.Rankings[i].Model == "good" && s.Rankings[i].Other == "truncated" {
+			rk = &s.Rankings[i]
+		}
+	}
+	if rk == nil {
+		t.Fatal("no AUC ranking of good and truncated")
+	}
+	checkWords(t, "ranking", rk.Sentence, []string{"AUC: good and truncated score the same on all 6 extents compared (every paired difference, and its interval, is 0)."},
+		[]string{"within noise"})
+	checkWords(t, "headline", s.Headline, []string{"By AUC, good and truncated score the same on all 6 extents;"}, []string{"good and truncated differ beyond noise"})
+	checkWords(t, "methods", methodsText(r), []string{"By AUC, good and truncated scored the same on all 6 extents (every paired difference 0).",
+		"By AUC, good and truncated scored the same on all 6 extents. "}, []string{"good was better than truncated beyond noise on 0", "good scored above truncated"})
+}
+
+// TestChainsStartFromScores: a chain's first AUC is the score on its first
+// member. A null's chain took the first ring's AUCInner (the outer
+// extent's test points against the inner cells) because only the models'
+// scores were looked up, which missed the step of test points; and a
+// chain whose first member has no score (no test point inside) started
+// from an AUC that member does not have.
+func TestChainsStartFromScores(t *testing.T) {
+	t.Run("null", func(t *testing.T) {
+		r := withNull(t)
+		for _, g := range r.Rings {
+			if g.Model == "good" {
+				g.Model = DistanceNullName
+				r.Rings = append(r.Rings, g)
+			}
+		}
+		s := analyzed(t, r)
+		for _, cs := range s.Chains {
+			if cs.Model != DistanceNullName || cs.Chain != "points" {
+				continue
+			}
+			// withNull gives the null an AUC of 0.999 on every extent.
+			if cs.StartAUC != 0.999 || cs.Steps[0].Kind != StepTestPoints {
+				t.Errorf("start %v, first step %s; want the null's score 0.999 and a step of test points", cs.StartAUC, cs.Steps[0].Kind)
+			}
+			checkWords(t, "sentence", cs.Sentence, []string{"Along chain points, AUC of null " + DistanceNullName + " goes from 0.999 (points_b25"}, []string{"of model " + DistanceNullName})
+			return
+		}
+		t.Fatal("no chain of the null")
+	})
+	t.Run("first member not scored", func(t *testing.T) {
+		r := loadSample(t)
+		for i := range r.Scores {
+			if r.Scores[i].Model == "good" && r.Scores[i].Extent == "base" {
+				r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+			}
+		}
+		s := analyzed(t, r)
+		for _, cs := range s.Chains {
+			if cs.Model != "good" || cs.Chain != "region" {
+				continue
+			}
+			if cs.Members[0] != "region_b50" || cs.StartAUC != findScore(r, "good", "region_b50").AUC {
+				t.Errorf("chain starts at %s with %v", cs.Members[0], cs.StartAUC)
+			}
+			checkWords(t, "sentence", cs.Sentence, []string{"goes from 0.916 (region_b50"}, []string{"(base,"})
+			return
+		}
+		t.Fatal("no region chain of good")
+	})
+}
+
+// TestConstantModelNotTruncated: a model with one value on every valid
+// cell is constant, not truncated, and the partial ROC's remedy for
+// truncated predictions does not apply to it.
+func TestConstantModelNotTruncated(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Models {
+		if r.Models[i].Name == "broad" {
+			r.Models[i].FloorShare = 1
+		}
+	}
+	s := analyzed(t, r)
+	for _, tc := range s.Truncation {
+		if tc.Model == "broad" {
+			checkWords(t, "sentence", tc.Sentence, []string{"Model broad is constant: its one value covers 100% of the valid area"},
+				[]string{"truncated", "Peterson"})
+			return
+		}
+	}
+	t.Fatal("no truncation check of broad")
+}
+
+// TestIndependenceWording: test points near training points make the
+// scores computed from them optimistic (a lower omission rate is
+// optimistic, not "inflated"; the predicted area uses no test point), and
+// the run does not know that the split was random.
+func TestIndependenceWording(t *testing.T) {
+	r := analyzedSample(t)
+	s := r.Sensitivity
+	if !s.Independence.Warn {
+		t.Fatal("the sample no longer warns of test points near training points")
+	}
+	notWant := []string{"inflate", "every score is", "all scores are", "a random split"}
+	checkWords(t, "headline", s.Headline, []string{"so every score computed from the test points is likely optimistic."}, notWant)
+	checkWords(t, "independence", s.Independence.Sentence, []string{"unlikely to be independent of them (spatial autocorrelation), so every score computed from the test points is likely optimistic."}, notWant)
+	checkWords(t, "reply", reviewerText(r), []string{"so every score computed from the test records is likely optimistic."}, notWant)
+}
+
+// TestSingleModelText: with one model there is no model comparison, so
+// the methods and the reply name the model instead of "at least one
+// model" and "every model", and do not describe differences between
+// models; a null's paired differences are described as such.
+func TestSingleModelText(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	keep := func(m string) bool { return m == "good" || m == DistanceNullName }
+	var ms []Model
+	for _, m := range r.Models {
+		if keep(m.Name) {
+			ms = append(ms, m)
+		}
+	}
+	r.Models = ms
+	var sc []Score
+	for _, s := range r.Scores {
+		if keep(s.Model) {
+			sc = append(sc, s)
+		}
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if keep(p.Model) && keep(p.OtherModel) {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	var rs []Ring
+	for _, g := range r.Rings {
+		if keep(g.Model) {
+			rs = append(rs, g)
+		}
+	}
+	r.Rings = rs
+	analyzed(t, r)
+	checkWords(t, "methods", methodsText(r),
+		[]string{"moved with the extent by more than the tolerance for good.", "stayed within the tolerance for good.",
+			"Differences between extents of one model, and between a model and a null on one extent were taken",
+			"We therefore report every score together with the extent it was computed on and treat the values"},
+		[]string{"at least one model", "for every model", "between models on one extent", "compare models only within one extent"})
 }

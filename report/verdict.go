@@ -168,6 +168,11 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		// the test points are not the reason.
 		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
 			name, joinList(mv.Undefined), a.base, within, largestWithin)
+	case big.Diff == 0 && big.Low == 0 && big.High == 0:
+		// Undetermined only for the differences on too few test points,
+		// every one of them 0: no extent is "the largest".
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
+			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s%s",
 			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
@@ -333,6 +338,12 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+			case r.identical():
+				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on all %d extent%s compared (every paired difference, and its interval, is 0).",
+					upperFirst(m.Label), ma, mb, r.Extents, plural(r.Extents))
+				if tooFew > 0 {
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+				}
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
@@ -344,4 +355,25 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 		}
 	}
 	return out
+}
+
+// identical reports whether the two models of rk score the same on every
+// extent compared: each counted paired difference and both ends of its
+// interval are 0 (two copies of one model, say). "Within noise" would
+// understate that: there is no noise between them.
+func (rk ModelRanking) identical() bool {
+	if rk.Extents == 0 || rk.Better != 0 || rk.Worse != 0 {
+		return false
+	}
+	n := 0
+	for _, d := range rk.Diffs {
+		if !d.Defined || d.Position == positionTooFew {
+			continue
+		}
+		if d.Diff != 0 || d.Low != 0 || d.High != 0 {
+			return false
+		}
+		n++
+	}
+	return n == rk.Extents
 }
