@@ -193,7 +193,13 @@ func headline(a *analysis, s *Sensitivity) string {
 				continue
 			}
 			against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
-			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
+			below := ""
+			if sp.Max < 0.5 {
+				// Worse than a random ranking everywhere (point estimates):
+				// the range alone leaves the reader to notice it.
+				below = " (below 0.5, the AUC of a random ranking, on every extent)"
+			}
+			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
 		}
 		if len(parts) == 0 {
 			b.WriteString("no model has an AUC.")

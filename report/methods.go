@@ -124,7 +124,7 @@ func methodsText(r *Results) string {
 	}
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(&b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
 		for _, m := range r.Models {
 			if m.NullKind == NullDistance {
 				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
@@ -198,6 +198,7 @@ const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distributi
 
 var references = []string{
 	"Anderson, R.P., Lew, D. & Peterson, A.T. (2003) Evaluating predictive models of species' distributions: criteria for selecting optimal models. Ecological Modelling 162: 211-232.",
+	"Boyce, M.S., Vernier, P.R., Nielsen, S.E. & Schmiegelow, F.K.A. (2002) Evaluating resource selection functions. Ecological Modelling 157: 281-300.",
 	"DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Comparing the areas under two or more correlated receiver operating characteristic curves: a nonparametric approach. Biometrics 44: 837-845.",
 	"Efron, B. & Tibshirani, R.J. (1993) An Introduction to the Bootstrap. Chapman & Hall, New York.",
 	"Hanley, J.A. & McNeil, B.J. (1982) The meaning and use of the area under a receiver operating characteristic (ROC) curve. Radiology 143: 29-36.",

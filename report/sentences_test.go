@@ -1126,3 +1126,28 @@ func TestSingleModelText(t *testing.T) {
 			"We therefore report every score together with the extent it was computed on and treat the values"},
 		[]string{"at least one model", "for every model", "between models on one extent", "compare models only within one extent"})
 }
+
+// TestBoyceCited: the Boyce index keeps its name and its origin: the
+// methods cite Boyce et al. (2002) beside Hirzel et al. (2006), whose
+// continuous form is computed, and list both among the references.
+func TestBoyceCited(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{"the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006;",
+		"- Boyce, M.S., Vernier, P.R., Nielsen, S.E. & Schmiegelow, F.K.A. (2002) Evaluating resource selection functions. Ecological Modelling 157: 281-300."}, nil)
+}
+
+// TestHeadlineBelowRandom: a model whose AUC is below 0.5 on every extent
+// ranks the test records below the background more often than not; the
+// headline says so rather than leave it to the reader of the range.
+func TestHeadlineBelowRandom(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" && r.Scores[i].Scored {
+			r.Scores[i].AUC = 1 - r.Scores[i].AUC
+		}
+	}
+	s := analyzed(t, r)
+	sp := s.findSpread("auc", "broad")
+	want := fmt.Sprintf("AUC of broad ranged %s–%s (below 0.5, the AUC of a random ranking, on every extent) and is", f3(sp.Min), f3(sp.Max))
+	checkWords(t, "headline", s.Headline, []string{want}, []string{"good ranged 0.798–0.966 (below 0.5"})
+}
