@@ -310,5 +310,8 @@ func metricsCaption(r *Results) string {
 	c += "Omission and predicted area at a threshold have no bar: the threshold comes from the training records alone. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
 		"Extents that were not scored are left out."
+	if len(nulls(r)) > 0 {
+		c += " " + nullsInMetricsCaption
+	}
 	return c
 }

@@ -1151,3 +1151,21 @@ func TestHeadlineBelowRandom(t *testing.T) {
 	want := fmt.Sprintf("AUC of broad ranged %s–%s (below 0.5, the AUC of a random ranking, on every extent) and is", f3(sp.Min), f3(sp.Max))
 	checkWords(t, "headline", s.Headline, []string{want}, []string{"good ranged 0.798–0.966 (below 0.5"})
 }
+
+// TestNullCaptions: the captions of the figures that draw nulls say how:
+// the scores-against-area figure draws them without bars (the caption
+// described the bars of "each model" only), and the model-minus-null
+// figure reads a bar wholly below 0 as well as one above it and says that
+// its pairs are shifted along the area axis.
+func TestNullCaptions(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	analyzed(t, r)
+	checkWords(t, "metrics caption", metricsCaption(r), []string{"Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."}, nil)
+	checkWords(t, "metrics caption without nulls", metricsCaption(loadSample(t)), nil, []string{"Nulls:"})
+	for _, f := range nullGapFigures(r) {
+		checkWords(t, "null caption", f.Caption, []string{"wholly below 0: the null beats the model", "shifted a few percent apart along the area axis"}, nil)
+		return
+	}
+	t.Fatal("no model-minus-null figure")
+}
