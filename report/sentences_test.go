@@ -1169,3 +1169,17 @@ func TestNullCaptions(t *testing.T) {
 	}
 	t.Fatal("no model-minus-null figure")
 }
+
+// TestVerdictMultiplicity: the verdicts read one unadjusted 95% interval
+// per extent ("extent-sensitive" when any lies outside the tolerance), so
+// the methods and the page say that the intervals are not adjusted for
+// the number of extents.
+func TestVerdictMultiplicity(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{"was not judged, and the intervals were not adjusted for the number of extents compared."}, nil)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"The intervals are per extent, not adjusted for the number of extents"}, nil)
+}
