@@ -181,6 +181,11 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	switch {
 	case g == nil || !g.Defined:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
+	case an.BaseReading != ReadingTooFew && g.zero():
+		// A copy of the null: "not above beyond noise" would suggest
+		// noise where there is none.
+		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s against %s).", an.BaseExtent, score, an.Model, null,
+			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
@@ -198,6 +203,10 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
+	if an.Defined >= 2 && an.allZero() {
+		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
+		return b.String()
+	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 		notTold := ""
@@ -213,6 +222,24 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
 	}
 	return b.String()
+}
+
+// zero reports whether the gap and both ends of its interval are 0.
+func (g *NullGap) zero() bool { return g.Defined && g.Diff == 0 && g.Low == 0 && g.High == 0 }
+
+// allZero reports whether every defined gap of an is 0 with its interval
+// (the model scores as the null does on every extent).
+func (an *AboveNull) allZero() bool {
+	n := 0
+	for i := range an.Gaps {
+		if g := &an.Gaps[i]; g.Defined {
+			if !g.zero() {
+				return false
+			}
+			n++
+		}
+	}
+	return n > 0
 }
 
 // gapEnds names the two extents the gap's description runs between:
@@ -294,11 +321,17 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
 			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if an.BaseReading != ReadingTooFew && g.zero() {
+			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
+		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test points, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
 				signed3(g.Diff), g.CommonPoints, MinPairedPoints)
 		}
-		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
+		switch {
+		case an.Defined >= 2 && an.allZero():
+			part += "; the gap is 0 on every extent"
+		case an.Defined >= 2 && an.SmallestExtent != an.LargestExtent:
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			small, large := an.gapEnds()
 			part += fmt.Sprintf("; the gap moves from %s on %s %s to %s on %s %s", signed3(sm.Diff), an.SmallestExtent, small, signed3(lg.Diff), an.LargestExtent, large)

@@ -181,7 +181,7 @@ func pairedWhat(s *Sensitivity) string {
 	if len(parts) == 1 {
 		return "Differences " + parts[0]
 	}
-	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ")
+	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ") + ","
 }
 
 func plural(n int) string {
@@ -419,9 +419,9 @@ func reviewerNullText(s *Sensitivity) string {
 		return ""
 	}
 	type byNull struct {
-		name, kind        string
-		above, not, below []string
-		few               []string
+		name, kind              string
+		above, not, below, same []string
+		few                     []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -435,12 +435,14 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 		// The number is the difference from the null, not the AUC.
 		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
-		switch an.BaseReading {
-		case ReadingTooFew:
+		switch {
+		case an.BaseReading == ReadingTooFew:
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
-		case ReadingAbove:
+		case g.zero():
+			n.same = append(n.same, an.Model)
+		case an.BaseReading == ReadingAbove:
 			n.above = append(n.above, part)
-		case ReadingBelow:
+		case an.BaseReading == ReadingBelow:
 			n.below = append(n.below, part)
 		default:
 			n.not = append(n.not, part)
@@ -470,6 +472,10 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 		if len(n.above) > 0 {
 			fmt.Fprintf(&b, "On the base extent %s above that of %s beyond noise. ", aucOf(n.above), n.name)
+		}
+		if len(n.same) > 0 {
+			// Every placement equal to the null's: a copy of it.
+			fmt.Fprintf(&b, "On the base extent %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", aucOf(n.same), n.name, holds)
 		}
 		if len(n.below) > 0 {
 			// Wholly below 0: the null ranks the test records better.

@@ -371,7 +371,8 @@ func TestMethodsTextSituations(t *testing.T) {
 			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
 				"on 8 evaluation extents (the base extent, base, and 7 others) from 28.2 to 231 thousand km²",
 				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05, Boyce index ±0.1; areasweep's defaults, not a published standard)",
-				"and undetermined otherwise; a difference on fewer than 10 common test records was not judged.",
+				"and undetermined otherwise; a difference on fewer than 10 common test records was not judged, and the intervals were not adjusted",
+				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
 				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
 			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,"}},
@@ -1122,7 +1123,7 @@ func TestSingleModelText(t *testing.T) {
 	analyzed(t, r)
 	checkWords(t, "methods", methodsText(r),
 		[]string{"moved with the extent by more than the tolerance for good.", "stayed within the tolerance for good.",
-			"Differences between extents of one model, and between a model and a null on one extent were taken",
+			"Differences between extents of one model, and between a model and a null on one extent, were taken",
 			"We therefore report every score together with the extent it was computed on and treat the values"},
 		[]string{"at least one model", "for every model", "between models on one extent", "compare models only within one extent"})
 }
@@ -1182,4 +1183,30 @@ func TestVerdictMultiplicity(t *testing.T) {
 		t.Fatal(err)
 	}
 	checkWords(t, "page", string(page), []string{"The intervals are per extent, not adjusted for the number of extents"}, nil)
+}
+
+// TestModelSameAsNull: a model whose every paired difference from a null,
+// and its interval, is 0 (a copy of the null) "is the same as" the null;
+// "not above beyond noise" and a gap "moving" from +0.000 to +0.000
+// would speak of noise and movement where there is none.
+func TestModelSameAsNull(t *testing.T) {
+	r := withNull(t)
+	ps := nullPaired(r)
+	for i := range ps {
+		ps[i].A, ps[i].B, ps[i].Diff, ps[i].SE, ps[i].Low, ps[i].High = 0.8, 0.8, 0, 0, 0, 0
+	}
+	r.Paired = append(r.Paired, ps...)
+	s := analyzed(t, r)
+	for _, an := range s.AboveNull {
+		if an.Metric != "auc" || an.Model != "good" {
+			continue
+		}
+		notWant := []string{"not above", "moves from", "runs from", "within noise"}
+		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null): the difference and its 95% interval are 0 (0.800 against 0.800).",
+			"are 0 on every one."}, notWant)
+		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (AUC difference and its 95% interval 0); the gap is 0 on every extent"}, notWant)
+		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName + " (difference and interval 0)"}, []string{"not above"})
+		return
+	}
+	t.Fatal("no AUC comparison of good with the null")
 }
