@@ -72,7 +72,7 @@ func TestModelAboveNullOfItsCopy(t *testing.T) {
 			continue
 		}
 		found++
-		if an.BaseReading != report.ReadingNotAbove || an.Above != 0 || an.Below != 0 || !strings.Contains(an.Sentence, "is the same as that of "+report.DistanceNullName+": the difference and its 95% interval are 0") {
+		if an.BaseReading != report.ReadingNotAbove || an.Above != 0 || an.Below != 0 || !strings.Contains(an.Sentence, "is the same as that of "+report.DistanceNullName+" (distance-only null): the difference and its 95% interval are 0") {
 			t.Errorf("%s: %+v", an.Model, an)
 		}
 	}
