@@ -1210,3 +1210,25 @@ func TestModelSameAsNull(t *testing.T) {
 	}
 	t.Fatal("no AUC comparison of good with the null")
 }
+
+// TestKendallWUndefinedSaysWhy: when every extent ties every model, the
+// table shows no Kendall's W; the sentence says why instead of leaving it
+// out silently.
+func TestKendallWUndefinedSaysWhy(t *testing.T) {
+	r := loadSample(t)
+	good := map[string]float64{}
+	for _, sc := range r.Scores {
+		if sc.Model == "good" {
+			good[sc.Extent] = sc.AUC
+		}
+	}
+	for i := range r.Scores {
+		r.Scores[i].AUC = good[r.Scores[i].Extent]
+	}
+	s := analyzed(t, r)
+	d := s.findDecomposition("auc")
+	if d == nil || !d.Defined || d.KendallWDefined {
+		t.Fatalf("decomposition %+v", d)
+	}
+	checkWords(t, "sentence", d.Sentence, []string{"Kendall's W is undefined: the models tie on every extent."}, nil)
+}
