@@ -1232,3 +1232,16 @@ func TestKendallWUndefinedSaysWhy(t *testing.T) {
 	}
 	checkWords(t, "sentence", d.Sentence, []string{"Kendall's W is undefined: the models tie on every extent."}, nil)
 }
+
+// TestExplorerPartialROCLabel: the extent explorer shows the full-sample
+// partial ROC ratio with the bootstrap's percentiles; it called the value
+// the "published half-size bootstrap", which it is not, and the resamples
+// are half-size only when --fraction is 0.5.
+func TestExplorerPartialROCLabel(t *testing.T) {
+	r := analyzedSample(t)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{`(full sample; the published bootstrap's 2.5th to 97.5th percentile `}, []string{"half-size"})
+}
