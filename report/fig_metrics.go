@@ -303,9 +303,9 @@ func metricsCaption(r *Results) string {
 		if st.Iterations >= 2 {
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
 		}
-		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (the published bootstrap)%s; "+
+		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",
-			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bar)
+			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
 	}
 	c += "Omission and predicted area at a threshold have no bar: the threshold comes from the training records alone. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +

@@ -115,8 +115,8 @@ func methodsText(r *Results) string {
 	}
 	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from the published bootstrap of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
-			fmtList(st.E, ""), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
+			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
@@ -164,6 +164,27 @@ func methodsText(r *Results) string {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
+}
+
+// bootstrapName names the partial ROC bootstrap of settings st: "the
+// published bootstrap" when it draws the published 50% of the test
+// records (Peterson et al. 2008), else "a bootstrap like the published
+// one (which draws 50%)", so that another --fraction is not passed off as
+// the published procedure.
+func bootstrapName(st Settings) string {
+	if st.ResampleFraction == 0.5 {
+		return "the published bootstrap"
+	}
+	return "a bootstrap like the published one (which draws 50%)"
+}
+
+// bootstrapNote is bootstrapName inside parentheses: "the published
+// bootstrap", or "the published bootstrap draws 50%".
+func bootstrapNote(st Settings) string {
+	if st.ResampleFraction == 0.5 {
+		return "the published bootstrap"
+	}
+	return "the published bootstrap draws 50%"
 }
 
 // pairedWhat names the paired differences the run formed: between the

@@ -1245,3 +1245,16 @@ func TestExplorerPartialROCLabel(t *testing.T) {
 	}
 	checkWords(t, "page", string(page), []string{`(full sample; the published bootstrap's 2.5th to 97.5th percentile `}, []string{"half-size"})
 }
+
+// TestBootstrapNamedByFraction: the partial ROC bootstrap is "the
+// published bootstrap" (Peterson et al. 2008) only when it draws 50% of
+// the test records; another --fraction is named as a variant of it.
+func TestBootstrapNamedByFraction(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods at 0.5", methodsText(r), []string{"from the published bootstrap of 200 resamples of 50% of the test records"}, nil)
+	checkWords(t, "caption at 0.5", metricsCaption(r), []string{"of 50% of the test records (the published bootstrap)"}, nil)
+	r.Settings.ResampleFraction = 0.3
+	notWant := []string{"the published bootstrap of", "(the published bootstrap)"}
+	checkWords(t, "methods at 0.3", methodsText(r), []string{"from a bootstrap like the published one (which draws 50%) of 200 resamples of 30% of the test records"}, notWant)
+	checkWords(t, "caption at 0.3", metricsCaption(r), []string{"of 30% of the test records (the published bootstrap draws 50%)"}, notWant)
+}
