@@ -1258,3 +1258,36 @@ func TestBootstrapNamedByFraction(t *testing.T) {
 	checkWords(t, "methods at 0.3", methodsText(r), []string{"from a bootstrap like the published one (which draws 50%) of 200 resamples of 30% of the test records"}, notWant)
 	checkWords(t, "caption at 0.3", metricsCaption(r), []string{"of 30% of the test records (the published bootstrap draws 50%)"}, notWant)
 }
+
+// TestRingPanelNamesNull: the ring figure's panel of a null, and the
+// caption of its continuation page, call it a null, as the chain's
+// sentence does, not a model.
+func TestRingPanelNamesNull(t *testing.T) {
+	r := withNull(t)
+	for _, g := range r.Rings {
+		if g.Model == "good" {
+			g.Model = DistanceNullName
+			r.Rings = append(r.Rings, g)
+		}
+	}
+	analyzed(t, r)
+	var caps []string
+	for _, f := range figures(r) {
+		caps = append(caps, f.Caption)
+	}
+	seen := false
+	for i := range r.Sensitivity.Chains {
+		cs := &r.Sensitivity.Chains[i]
+		if cs.Model != DistanceNullName {
+			continue
+		}
+		seg := ringSeg{w: &chainWaterfall{cs: []*ChainSummary{cs}, models: []int{-1}}}
+		title := seg.title(len(r.Sensitivity.ModelNames))
+		checkWords(t, "panel title", title, []string{"nested chain " + cs.Chain + ", null " + DistanceNullName}, []string{"model"})
+		seen = true
+	}
+	if !seen {
+		t.Fatal("no chain of the null")
+	}
+	checkWords(t, "captions", strings.Join(caps, "\n"), nil, []string{"model " + DistanceNullName})
+}
