@@ -211,7 +211,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 		notTold := ""
 		if k := an.Defined - an.Above - an.NotAbove - an.Below; k > 0 {
-			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points", k, MinPairedPoints)
+			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", k, MinPairedPoints)
 		}
 		small, large := an.gapEnds()
 		counts := fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d%s", an.Above, an.NotAbove, an.Below, notTold)

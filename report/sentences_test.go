@@ -371,7 +371,7 @@ func TestMethodsTextSituations(t *testing.T) {
 			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
 				"on 8 evaluation extents (the base extent, base, and 7 others) from 28.2 to 231 thousand km²",
 				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05, Boyce index ±0.1; areasweep's defaults, not a published standard)",
-				"and undetermined otherwise; a difference on fewer than 10 common test records was not judged, and the intervals were not adjusted",
+				"and undetermined otherwise; a difference on fewer than 10 common test records (our cut-off) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
 				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
@@ -651,7 +651,7 @@ func TestRankingSentenceReasons(t *testing.T) {
 		{"undefined on every extent", func(p *Paired) { p.Defined = false },
 			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
 		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
-			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points.", ""},
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points (our cut-off).", ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -1290,4 +1290,32 @@ func TestRingPanelNamesNull(t *testing.T) {
 		t.Fatal("no chain of the null")
 	}
 	checkWords(t, "captions", strings.Join(caps, "\n"), nil, []string{"model " + DistanceNullName})
+}
+
+// TestTenPointCutoffOurs: every sentence that applies the 10-common-point
+// rule names it as our cut-off (the model comparisons, the note above
+// them, the gaps against a null, the methods).
+func TestTenPointCutoffOurs(t *testing.T) {
+	r := withNull(t)
+	ps := nullPaired(r)
+	ps[0].CommonPoints = 5
+	r.Paired = append(r.Paired, ps...)
+	setPaired(r, "auc", PairedKindModel, "good", "base", func(p *Paired) { p.CommonPoints = 5 })
+	s := analyzed(t, r)
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Model == "good" && rk.Other == "truncated" {
+			checkWords(t, "ranking", rk.Sentence, []string{"Not counted: 1 extent where they share fewer than 10 test points (our cut-off)."}, nil)
+		}
+	}
+	for _, an := range s.AboveNull {
+		if an.Metric == "auc" && an.Model == "good" {
+			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off)"}, nil)
+		}
+	}
+	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (our cut-off) was not judged"}, nil)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"share fewer than 10 test points (our cut-off) are not counted"}, nil)
 }

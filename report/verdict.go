@@ -335,20 +335,20 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			}
 			switch {
 			case r.Extents == 0 && tooFew > 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, MinPairedPoints)
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			case r.identical():
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on all %d extent%s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, r.Extents, plural(r.Extents))
 				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
 				}
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
 				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
 				}
 			}
 			out = append(out, r)
