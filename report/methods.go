@@ -123,8 +123,10 @@ func methodsText(r *Results) string {
 		fmt.Fprintf(&b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
 	}
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
+	// The predicted area is judged like the other scores: say what it is.
+	b.WriteString("; the predicted area, the share of the extent's area at or above the minimum training presence")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(&b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
 		for _, m := range r.Models {
 			if m.NullKind == NullDistance {
 				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")

@@ -1319,3 +1319,16 @@ func TestTenPointCutoffOurs(t *testing.T) {
 	}
 	checkWords(t, "page", string(page), []string{"share fewer than 10 test points (our cut-off) are not counted"}, nil)
 }
+
+// TestMethodsDescribeWhatWasComputed: the methods define every score they
+// judge (the predicted area was judged and given a tolerance but never
+// defined) and describe the Boyce window areas as computed: the area at
+// each presence value and fixed threshold is counted exactly, not spread
+// over its histogram bin (metrics.Boyce since the window areas were made
+// exact at those values).
+func TestMethodsDescribeWhatWasComputed(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{
+		"; the predicted area, the share of the extent's area at or above the minimum training presence;",
+		"each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value"}, nil)
+}
