@@ -1332,3 +1332,25 @@ func TestMethodsDescribeWhatWasComputed(t *testing.T) {
 		"; the predicted area, the share of the extent's area at or above the minimum training presence;",
 		"each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value"}, nil)
 }
+
+// TestUndeterminedSaysWhere: an undetermined verdict quotes the largest
+// difference, whose interval may lie inside the tolerance while another
+// extent's straddles it; the sentence says on how many extents the
+// interval straddles the tolerance and names the one reaching furthest.
+func TestUndeterminedSaysWhere(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Diff, p.Low, p.High = 0.01, -0.02, 0.04
+		}
+	}
+	setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, -0.08, 0.03 })
+	setPaired(r, "boyce", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, 0.005, 0.15 })
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("boyce", "good")
+	if mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"the largest difference from base is -0.050 on hull (95% interval -0.080 to +0.030); the 95% interval straddles ±0.1 on 1 of",
+		"reaching furthest beyond it with +0.020 on whole (95% interval +0.005 to +0.150)"}, nil)
+}

@@ -174,8 +174,8 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
 			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s%s",
-			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
+			name, tol, a.base, differenceText(big, m.Tolerance), straddleText(mv.Diffs, big, m.Tolerance), notOn, tooFewText(mv.Diffs))
 	}
 	return mv
 }
@@ -201,6 +201,33 @@ func differenceText(d ExtentDifference, tol float64) string {
 		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
 	}
 	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// straddleText says on how many extents the 95% interval straddles ±tol,
+// which is what leaves a verdict undetermined, and names the one that
+// reaches furthest beyond the tolerance when that is not big (the largest
+// difference, already quoted): the largest difference's own interval may
+// lie inside the tolerance. "" when no interval straddles it.
+func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) string {
+	n := 0
+	var far *ExtentDifference
+	reach := func(d *ExtentDifference) float64 { return math.Max(math.Abs(d.Low), math.Abs(d.High)) }
+	for i := range ds {
+		if d := &ds[i]; d.Defined && d.Position == "overlapping" {
+			n++
+			if far == nil || reach(d) > reach(far) {
+				far = d
+			}
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	out := fmt.Sprintf("; the 95%% interval straddles ±%s on %d of %d extent%s", fmtG(tol), n, len(ds), plural(len(ds)))
+	if far.Extent != big.Extent {
+		out += ", reaching furthest beyond it with " + differenceText(*far, tol)
+	}
+	return out
 }
 
 // tooFewText names the differences left unjudged for resting on fewer
