@@ -515,7 +515,7 @@ func reviewerNullText(s *Sensitivity) string {
 			fmt.Fprintf(&b, "On the base extent %s not above that of %s beyond noise, so on that extent AUC gives no evidence of skill beyond %s. ", aucOf(n.not), n.name, holds)
 		}
 		if len(n.few) > 0 {
-			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we judge no difference on fewer than %d). ", joinList(n.few), n.name, MinPairedPoints)
+			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we do not judge a difference on fewer than %d common test records, our cut-off). ", joinList(n.few), n.name, MinPairedPoints)
 		}
 	}
 	return b.String()

@@ -1354,3 +1354,15 @@ func TestUndeterminedSaysWhere(t *testing.T) {
 	checkWords(t, "sentence", mv.Sentence, []string{"the largest difference from base is -0.050 on hull (95% interval -0.080 to +0.030); the 95% interval straddles ±0.1 on 1 of",
 		"reaching furthest beyond it with +0.020 on whole (95% interval +0.005 to +0.150)"}, nil)
 }
+
+// TestReplyTooFewAgainstNull: with too few common test records on the
+// base extent, the reply says that no difference is judged there, not
+// "we judge no difference" (which reads as "we find none").
+func TestReplyTooFewAgainstNull(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.CommonPoints = 6 })
+	s := analyzed(t, r)
+	checkWords(t, "reply", reviewerNullText(s), []string{"too few to compare good (6 common test records) with " + DistanceNullName +
+		" (we do not judge a difference on fewer than 10 common test records, our cut-off)"}, []string{"we judge no difference"})
+}
