@@ -137,8 +137,8 @@ func methodsText(r *Results) string {
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
 	fmt.Fprintf(&b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
-	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
-		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
+	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -166,6 +166,33 @@ func methodsText(r *Results) string {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
+}
+
+// referenceText names the extent every difference is taken from: the
+// base extent as format says it (format holds one %s for its id), or,
+// when the base extent could not be scored and the first scored extent
+// stands in for it (BaseExtent), that extent named as the reference with
+// the reason the base extent was left out.
+func referenceText(s *Sensitivity, format string) string {
+	if s.BaseExtent == vocab.BaseID {
+		return fmt.Sprintf(format, s.BaseExtent)
+	}
+	why := ""
+	for _, e := range s.SkippedExtents {
+		if e.ID == vocab.BaseID {
+			why = fmt.Sprintf(", in place of the base extent %s (left out: %s)", e.ID, e.Reason)
+		}
+	}
+	return fmt.Sprintf("the reference extent %s%s", s.BaseExtent, why)
+}
+
+// referenceWord is "the base extent", or "the reference extent" when
+// another extent stands in for it (referenceText).
+func referenceWord(s *Sensitivity) string {
+	if s.BaseExtent == vocab.BaseID {
+		return "the base extent"
+	}
+	return "the reference extent"
 }
 
 // bootstrapName names the partial ROC bootstrap of settings st: "the
@@ -357,7 +384,7 @@ func reviewerText(r *Results) string {
 			fmt.Fprintf(&b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(&b, " (the base extent, %s, and %d other%s) %s", s.BaseExtent, n-1, plural(n-1), areaRange(lo, hi))
+			fmt.Fprintf(&b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, plural(n-1), areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {
@@ -369,8 +396,8 @@ func reviewerText(r *Results) string {
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
-			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
+		fmt.Fprintf(&b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
+			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
 	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
@@ -480,6 +507,7 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 	}
 	var b strings.Builder
+	on := referenceWord(s) // the extent the base readings are on
 	fmt.Fprintf(&b, "We also scored %s on the same extents and test records. ", joinList(what))
 	// aucOf is "the AUC of a is" or "the AUCs of a and b are".
 	aucOf := func(models []string) string {
@@ -494,11 +522,11 @@ func reviewerNullText(s *Sensitivity) string {
 			holds = "the geography of the records"
 		}
 		if len(n.above) > 0 {
-			fmt.Fprintf(&b, "On the base extent %s above that of %s beyond noise. ", aucOf(n.above), n.name)
+			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise. ", on, aucOf(n.above), n.name)
 		}
 		if len(n.same) > 0 {
 			// Every placement equal to the null's: a copy of it.
-			fmt.Fprintf(&b, "On the base extent %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", aucOf(n.same), n.name, holds)
+			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", on, aucOf(n.same), n.name, holds)
 		}
 		if len(n.below) > 0 {
 			// Wholly below 0: the null ranks the test records better.
@@ -506,16 +534,16 @@ func reviewerNullText(s *Sensitivity) string {
 			if len(n.below) > 1 {
 				who = "the models do"
 			}
-			fmt.Fprintf(&b, "On the base extent %s below that of %s beyond noise, so on that extent %s alone ranks the test records above the background better than %s. ",
-				aucOf(n.below), n.name, holds, who)
+			fmt.Fprintf(&b, "On %s %s below that of %s beyond noise, so on that extent %s alone ranks the test records above the background better than %s. ",
+				on, aucOf(n.below), n.name, holds, who)
 		}
 		if len(n.not) > 0 {
 			// An interval that includes 0: absence of evidence, not
 			// evidence that the model has no skill.
-			fmt.Fprintf(&b, "On the base extent %s not above that of %s beyond noise, so on that extent AUC gives no evidence of skill beyond %s. ", aucOf(n.not), n.name, holds)
+			fmt.Fprintf(&b, "On %s %s not above that of %s beyond noise, so on that extent AUC gives no evidence of skill beyond %s. ", on, aucOf(n.not), n.name, holds)
 		}
 		if len(n.few) > 0 {
-			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we do not judge a difference on fewer than %d common test records, our cut-off). ", joinList(n.few), n.name, MinPairedPoints)
+			fmt.Fprintf(&b, "On %s the test records are too few to compare %s with %s (we do not judge a difference on fewer than %d common test records, our cut-off). ", on, joinList(n.few), n.name, MinPairedPoints)
 		}
 	}
 	return b.String()

@@ -1366,3 +1366,28 @@ func TestReplyTooFewAgainstNull(t *testing.T) {
 	checkWords(t, "reply", reviewerNullText(s), []string{"too few to compare good (6 common test records) with " + DistanceNullName +
 		" (we do not judge a difference on fewer than 10 common test records, our cut-off)"}, []string{"we judge no difference"})
 }
+
+// TestReferenceExtentInPlaceOfBase: when the base extent holds no test
+// point, the first scored extent stands in for it; the verdicts, the
+// methods and the reply call that extent the reference extent and say
+// why, instead of calling it "the base extent".
+func TestReferenceExtentInPlaceOfBase(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	if s.BaseExtent == vocab.BaseID {
+		t.Fatalf("the reference extent is still %s", s.BaseExtent)
+	}
+	ref := s.BaseExtent
+	notWant := []string{"the base extent (" + ref + ")", "the base extent, " + ref, "with the base extent on", "On the base extent "}
+	checkWords(t, "verdict", s.Verdicts[0].Sentence, []string{"paired differences from the reference extent " + ref + ")"}, []string{"from the base extent"})
+	checkWords(t, "methods", methodsText(r), []string{
+		"its difference from the reference extent " + ref + ", in place of the base extent base (left out: ",
+		"we compared every extent with the reference extent on the test records both hold",
+		"On the reference extent the AUC of good"}, notWant)
+}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // pairedFor returns the paired record of metric between (model, ext) and
@@ -315,7 +317,13 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	if len(v.Undetermined) > 0 {
 		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
 	}
-	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from the base extent): %s.", upperFirst(m.Label), fmtG(m.Tolerance), strings.Join(parts, "; "))
+	from := "the base extent"
+	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID {
+		// The first scored extent stands in for a base extent that could
+		// not be scored: name it, not "the base extent".
+		from = "the reference extent " + mvs[0].Base
+	}
+	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
 	}
