@@ -1391,3 +1391,18 @@ func TestReferenceExtentInPlaceOfBase(t *testing.T) {
 		"we compared every extent with the reference extent on the test records both hold",
 		"On the reference extent the AUC of good"}, notWant)
 }
+
+// TestNoCommonPointsIsNotUndefined: an extent that shares no test point
+// with the base (one beside it, not around it) has a defined score; the
+// verdict says that no paired difference could be formed there, not that
+// the score "is undefined" on it.
+func TestNoCommonPointsIsNotUndefined(t *testing.T) {
+	r := loadSample(t)
+	setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = false, 0, 0, 0, 0
+	})
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	checkWords(t, "sentence", mv.Sentence, []string{"No paired difference from base could be formed on points_b25 (0 common test points)."},
+		[]string{"undefined on points_b25"})
+}

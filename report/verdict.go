@@ -148,7 +148,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
-		notOn = fmt.Sprintf(" It is undefined on %s.", joinList(mv.Undefined))
+		notOn = " " + upperFirst(a.undefinedText(m, model, mv)) + "."
 	}
 	within, largestWithin := "lies within "+tol+" with its 95% interval", largest
 	if exact {
@@ -168,8 +168,8 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	case allInside(definedDiffs(mv.Diffs)):
 		// Undetermined only because the score is undefined somewhere:
 		// the test points are not the reason.
-		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
-			name, joinList(mv.Undefined), a.base, within, largestWithin)
+		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
+			name, a.undefinedText(m, model, mv), a.base, within, largestWithin)
 	case big.Diff == 0 && big.Low == 0 && big.High == 0:
 		// Undetermined only for the differences on too few test points,
 		// every one of them 0: no extent is "the largest".
@@ -203,6 +203,35 @@ func differenceText(d ExtentDifference, tol float64) string {
 		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
 	}
 	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// undefinedText says where no difference from the base could be formed
+// and why: "it is undefined on X" where the score itself is undefined,
+// "no paired difference from base could be formed on Y (0 common test
+// points)" where the score is defined but the two extents share fewer
+// than two test points (an extent beside the base rather than around it).
+func (a *analysis) undefinedText(m MetricInfo, model string, mv ModelVerdict) string {
+	var undef, apart []string
+	for _, d := range mv.Diffs {
+		if d.Defined {
+			continue
+		}
+		if sc := a.score(model, d.Extent); sc != nil && d.CommonPoints < 2 {
+			if _, ok, _, _, _, _ := metricValue(m, sc); ok {
+				apart = append(apart, fmt.Sprintf("%s (%d common test point%s)", d.Extent, d.CommonPoints, plural(d.CommonPoints)))
+				continue
+			}
+		}
+		undef = append(undef, d.Extent)
+	}
+	var parts []string
+	if len(undef) > 0 {
+		parts = append(parts, "it is undefined on "+joinList(undef))
+	}
+	if len(apart) > 0 {
+		parts = append(parts, "no paired difference from "+mv.Base+" could be formed on "+joinList(apart))
+	}
+	return strings.Join(parts, ", and ")
 }
 
 // straddleText says on how many extents the 95% interval straddles ±tol,
