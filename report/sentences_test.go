@@ -1406,3 +1406,27 @@ func TestNoCommonPointsIsNotUndefined(t *testing.T) {
 	checkWords(t, "sentence", mv.Sentence, []string{"No paired difference from base could be formed on points_b25 (0 common test points)."},
 		[]string{"undefined on points_b25"})
 }
+
+// TestPageReferenceExtent: the page's Analysis heading and note call the
+// extent the differences are taken from the reference extent, and say
+// why, when the base extent could not be scored.
+func TestPageReferenceExtent(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the reference extent</h3>",
+		"minus the score on " + s.BaseExtent + ", in place of the base extent base (left out: "}, []string{"Difference from the base extent"})
+	plain, err := htmlPage(analyzedSample(t), nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page with base", string(plain), []string{"<h3>Difference from the base extent</h3>", "minus the score on base, on the test points"}, nil)
+}
