@@ -77,6 +77,9 @@
 #     points chains of the null gain a step of test points, so their
 #     start_auc, change, steps, largest and slope moved (points from
 #     0.588 to 0.661); scores.csv and every score are unchanged);
+#   - rewritten again on branch h13 (an undetermined verdict's sentence
+#     adds on how many extents its interval straddles the tolerance: the
+#     demo's Boyce index of good, "on 7 of 12 extents"; sentence only);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
