@@ -1430,3 +1430,12 @@ func TestPageReferenceExtent(t *testing.T) {
 	}
 	checkWords(t, "page with base", string(plain), []string{"<h3>Difference from the base extent</h3>", "minus the score on base, on the test points"}, nil)
 }
+
+// TestMetricsCaptionOmissionUncertain: the scores figure draws no bar for
+// the omission rate, but the omission rate is computed from the test
+// records and so has sampling error (only the predicted area has none);
+// the caption gave the threshold's origin as the reason for both.
+func TestMetricsCaptionOmissionUncertain(t *testing.T) {
+	checkWords(t, "caption", metricsCaption(analyzedSample(t)), []string{"The predicted area has no sampling error",
+		"the omission rate does vary with the test records"}, []string{"have no bar: the threshold comes from the training records alone"})
+}
