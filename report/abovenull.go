@@ -181,6 +181,11 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	switch {
 	case g == nil || !g.Defined:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
+	case an.BaseReading != ReadingTooFew && g.zero():
+		// A copy of the null: "not above beyond noise" would suggest
+		// noise where there is none.
+		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s against %s).", an.BaseExtent, score, an.Model, null,
+			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
@@ -188,22 +193,81 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
-		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: it is below it, %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		// Wholly below 0: the model is worse than the null beyond noise,
+		// which "does not beat" would understate.
+		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
-		fmt.Fprintf(&b, "On %s, %s of %s does not beat %s: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
+		// An interval that includes 0 tells neither that the model is
+		// above the null nor that it is not: no evidence either way.
+		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+	}
+	if an.Defined >= 2 && an.allZero() {
+		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
+		return b.String()
 	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 		notTold := ""
 		if k := an.Defined - an.Above - an.NotAbove - an.Below; k > 0 {
-			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points", k, MinPairedPoints)
+			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", k, MinPairedPoints)
 		}
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s (the smallest extent) to %s on %s (the largest); the model is above the null beyond noise on %d, within noise on %d and below on %d%s (a description of this family of extents).",
-			an.Defined, signed3(s.Diff), an.SmallestExtent, signed3(l.Diff), an.LargestExtent, an.Above, an.NotAbove, an.Below, notTold)
+		small, large := an.gapEnds()
+		counts := fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d%s", an.Above, an.NotAbove, an.Below, notTold)
+		if an.Above+an.NotAbove+an.Below == 0 {
+			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", MinPairedPoints)
+		}
+		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s (a description of this family of extents).",
+			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
 	}
 	return b.String()
+}
+
+// zero reports whether the gap and both ends of its interval are 0.
+func (g *NullGap) zero() bool { return g.Defined && g.Diff == 0 && g.Low == 0 && g.High == 0 }
+
+// allZero reports whether every defined gap of an is 0 with its interval
+// (the model scores as the null does on every extent).
+func (an *AboveNull) allZero() bool {
+	n := 0
+	for i := range an.Gaps {
+		if g := &an.Gaps[i]; g.Defined {
+			if !g.zero() {
+				return false
+			}
+			n++
+		}
+	}
+	return n > 0
+}
+
+// gapEnds names the two extents the gap's description runs between:
+// "(the smallest extent)" and "(the largest)" when they are the smallest
+// and largest of the extents compared, "(the smallest extent where it is
+// defined)" when the difference is undefined on some smaller one, and
+// each end's common test points when they are fewer than MinPairedPoints
+// (such a gap is a description, not read against 0).
+func (an *AboveNull) gapEnds() (small, large string) {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, g := range an.Gaps {
+		lo, hi = math.Min(lo, g.AreaKm2), math.Max(hi, g.AreaKm2)
+	}
+	end := func(id, word string, all bool) string {
+		out := "the " + word
+		if word == "smallest" {
+			out += " extent"
+		}
+		if !all {
+			out += " where it is defined"
+		}
+		if g := an.gap(id); g != nil && g.Reading == ReadingTooFew {
+			out += fmt.Sprintf(", on %d common test point%s, not read", g.CommonPoints, plural(g.CommonPoints))
+		}
+		return "(" + out + ")"
+	}
+	s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
+	return end(an.SmallestExtent, "smallest", s != nil && s.AreaKm2 <= lo), end(an.LargestExtent, "largest", l != nil && l.AreaKm2 >= hi)
 }
 
 // metricPhrase names metric m inside a sentence: "AUC", "the partial ROC
@@ -246,19 +310,31 @@ func aboveNullHeadline(s *Sensitivity) string {
 	var parts []string
 	for _, bg := range s.baseAUCGaps() {
 		an, g := bg.an, bg.g
-		verb := "does not beat"
-		if an.BaseReading == ReadingAbove {
-			verb = "beats"
+		// The verb follows the interval: wholly above 0, wholly below it,
+		// or including it (no evidence either way).
+		verb := "is not above"
+		switch an.BaseReading {
+		case ReadingAbove:
+			verb = "is above"
+		case ReadingBelow:
+			verb = "is below"
 		}
-		part := fmt.Sprintf("%s %s %s on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
+		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
 			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if an.BaseReading != ReadingTooFew && g.zero() {
+			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
+		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test points, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
 				signed3(g.Diff), g.CommonPoints, MinPairedPoints)
 		}
-		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
+		switch {
+		case an.Defined >= 2 && an.allZero():
+			part += "; the gap is 0 on every extent"
+		case an.Defined >= 2 && an.SmallestExtent != an.LargestExtent:
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
-			part += fmt.Sprintf("; the gap moves from %s on %s (the smallest extent) to %s on %s (the largest)", signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
+			small, large := an.gapEnds()
+			part += fmt.Sprintf("; the gap moves from %s on %s %s to %s on %s %s", signed3(sm.Diff), an.SmallestExtent, small, signed3(lg.Diff), an.LargestExtent, large)
 		}
 		parts = append(parts, part)
 	}

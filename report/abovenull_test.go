@@ -86,10 +86,10 @@ func TestAboveNullReadings(t *testing.T) {
 	if !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is above") {
 		t.Errorf("sentence: %s", an.Sentence)
 	}
-	if !strings.Contains(r.Sensitivity.Headline, model+" beats "+DistanceNullName+" on "+base) {
+	if !strings.Contains(r.Sensitivity.Headline, model+" is above "+DistanceNullName+" beyond noise on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
 	}
-	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval +0.060 to +0.140) is above that of "+DistanceNullName+" beyond noise") {
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (difference +0.100, 95% interval +0.060 to +0.140) is above that of "+DistanceNullName+" beyond noise") {
 		t.Errorf("reviewer reply: %s", rv)
 	}
 	if rows := aboveNullRows(r); len(rows) != len(ok) {
@@ -115,10 +115,32 @@ func TestAboveNullReadings(t *testing.T) {
 	if err := Analyze(r); err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(r.Sensitivity.Headline, model+" does not beat "+DistanceNullName+" on "+base) {
+	if !strings.Contains(r.Sensitivity.Headline, model+" is not above "+DistanceNullName+" beyond noise on "+base) {
 		t.Errorf("headline: %s", r.Sensitivity.Headline)
 	}
-	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (+0.100, 95% interval -0.010 to +0.140) does not exceed that of "+DistanceNullName+" beyond noise") {
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (difference +0.100, 95% interval -0.010 to +0.140) is not above that of "+DistanceNullName+" beyond noise, so on that extent AUC gives no evidence of skill") {
 		t.Errorf("reviewer reply: %s", rv)
+	}
+
+	// A null the model is below beyond noise on the base extent: "does not
+	// beat" or "not above" would understate it.
+	for i := range r.Paired {
+		if r.Paired[i].Kind == PairedKindNull && r.Paired[i].Extent == base {
+			r.Paired[i].Diff, r.Paired[i].Low, r.Paired[i].High = -0.1, -0.14, -0.06
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(r.Sensitivity.Headline, model+" is below "+DistanceNullName+" beyond noise on "+base+" (AUC difference -0.100") {
+		t.Errorf("headline: %s", r.Sensitivity.Headline)
+	}
+	if rv := reviewerText(r); !strings.Contains(rv, "the AUC of "+model+" (difference -0.100, 95% interval -0.140 to -0.060) is below that of "+DistanceNullName+" beyond noise, so on that extent the geography of the records alone ranks the test records above the background better than the model does") {
+		t.Errorf("reviewer reply: %s", rv)
+	}
+	for _, an := range r.Sensitivity.AboveNull {
+		if an.Metric == "auc" && !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is below "+DistanceNullName+" (distance-only null) beyond noise: -0.100") {
+			t.Errorf("sentence: %s", an.Sentence)
+		}
 	}
 }

@@ -36,6 +36,11 @@ func (a *analysis) chains() ([]ChainSummary, []string) {
 			warns = append(warns, fmt.Sprintf("chain %s, model %s: rings do not link inner to outer; ordered by inner area", k.chain, k.model))
 		}
 		cs, w := a.chainSummary(k.chain, k.model, rings)
+		if len(cs.Members) == 0 {
+			// No member of the chain has a score of this model: there is
+			// no AUC to start from (every ring's inner extent is unscored).
+			continue
+		}
 		out = append(out, cs)
 		warns = append(warns, w...)
 	}
@@ -99,16 +104,20 @@ func (a *analysis) extentArea(id string, fallback float64) float64 {
 func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary, []string) {
 	cs := ChainSummary{Chain: chain, Model: model, Members: []string{}, MemberAreasKm2: []float64{}, Steps: []ChainStep{}, Largest: -1}
 	var warns []string
+	// A chain starts at its first member with a score: an inner extent
+	// without one (no test points inside, say) has no AUC of its own, and
+	// its ring's AUCInner is the outer extent's test points against its
+	// cells, which the sentence would misname as the score there.
+	for len(rings) > 0 && a.chainScore(model, rings[0].Inner) == nil {
+		rings = rings[1:]
+	}
 	if len(rings) == 0 {
 		return cs, nil
 	}
 	first := rings[0]
 	cs.Members = append(cs.Members, first.Inner)
 	cs.MemberAreasKm2 = append(cs.MemberAreasKm2, a.extentArea(first.Inner, first.InnerAreaKm2))
-	prev := first.AUCInner
-	if sc := a.score(model, first.Inner); sc != nil {
-		prev = sc.AUC
-	}
+	prev := a.chainScore(model, first.Inner).AUC
 	cs.StartAUC = prev
 	for _, g := range rings {
 		cs.Members = append(cs.Members, g.Outer)
@@ -144,7 +153,7 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 	var auc []float64
 	for k, id := range cs.Members {
 		v := 0.0
-		if sc := a.score(model, id); sc != nil {
+		if sc := a.chainScore(model, id); sc != nil {
 			v = sc.AUC
 		} else if k == 0 {
 			v = first.AUCInner
@@ -164,14 +173,33 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 			}
 		}
 	}
-	cs.Sentence = chainSentence(&cs)
+	who := "model"
+	if isNull(a.r, model) {
+		who = "null"
+	}
+	cs.Sentence = chainSentence(&cs, who)
 	return cs, warns
 }
 
-func chainSentence(cs *ChainSummary) string {
+// chainScore is the usable score of model on extent, a null's too
+// (a.score holds the models only): a chain of a null starts from the
+// null's own score, as a model's does.
+func (a *analysis) chainScore(model, extent string) *Score {
+	if sc := a.score(model, extent); sc != nil || !isNull(a.r, model) {
+		return sc
+	}
+	if _, ok := a.extIndex[extent]; !ok {
+		return nil
+	}
+	return findScore(a.r, model, extent)
+}
+
+// chainSentence says how AUC moves along the chain cs of a "model" or a
+// "null" (who).
+func chainSentence(cs *ChainSummary, who string) string {
 	n := len(cs.Members)
-	head := fmt.Sprintf("Along chain %s, AUC of model %s goes from %s (%s, %s km²) to %s (%s, %s km²)",
-		cs.Chain, cs.Model, f3(cs.StartAUC), cs.Members[0], fmtArea(cs.MemberAreasKm2[0]),
+	head := fmt.Sprintf("Along chain %s, AUC of %s %s goes from %s (%s, %s km²) to %s (%s, %s km²)",
+		cs.Chain, who, cs.Model, f3(cs.StartAUC), cs.Members[0], fmtArea(cs.MemberAreasKm2[0]),
 		f3(cs.EndAUC), cs.Members[n-1], fmtArea(cs.MemberAreasKm2[n-1]))
 	if !cs.SharesDefined {
 		return head + ": it barely changes, so shares are not defined."

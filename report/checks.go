@@ -81,6 +81,11 @@ func (a *analysis) truncationSentence(t *TruncationCheck) string {
 		return fmt.Sprintf("Model %s shows no sign of truncated predictions by our cut-offs: its minimum value covers %s of the valid area (flagged from %s), and no ROC curve ends in a tie of test points with more than %s of the area axis.",
 			t.Model, pctVs(t.FloorShare, FloorShareFlag), pct(FloorShareFlag), fmtG(TailJumpFlag))
 	}
+	if t.FloorShare >= 1 {
+		// One value on every valid cell: constant, not truncated, and the
+		// partial ROC's remedy for truncation does not apply.
+		return fmt.Sprintf("Model %s is constant: its one value covers 100%% of the valid area, so it ranks no cell above another and no score can tell its test points from the background.", t.Model)
+	}
 	s := fmt.Sprintf("Model %s looks truncated by our cut-offs:", t.Model)
 	if t.FloorFlag {
 		s += fmt.Sprintf(" its minimum value covers %s of the valid area (flagged from %s)", pctVs(t.FloorShare, FloorShareFlag), pct(FloorShareFlag))
@@ -179,7 +184,9 @@ func (a *analysis) independence() Independence {
 		len(d), trimFloat(ind.Min, 3), trimFloat(ind.Max, 3), trimFloat(ind.Median, 3), pctVs(ind.NearShare, NearShareWarn), NearCells, trimFloat(ind.NearKm, 3), how)
 	switch {
 	case ind.Warn:
-		ind.Sentence += fmt.Sprintf(", more than our %s warning level: a random split under spatial autocorrelation inflates every score.", pct(NearShareWarn))
+		// Whether the split was random, and how autocorrelated the
+		// species is, the run does not know: say what the distances show.
+		ind.Sentence += fmt.Sprintf(", more than our %s warning level: test points this near training points are unlikely to be independent of them (spatial autocorrelation), so every score computed from the test points is likely optimistic.", pct(NearShareWarn))
 	case ind.NearShare == NearShareWarn:
 		ind.Sentence += fmt.Sprintf(", at our %s warning level (we warn above it).", pct(NearShareWarn))
 	default:

@@ -148,6 +148,10 @@ func decompositionSentence(m MetricInfo, d *Decomposition) string {
 		} else {
 			s += fmt.Sprintf("the order of the point estimates differs from %s on %s; see the paired model differences for whether that is beyond noise.", d.BaseExtent, strings.Join(d.DiffersFromBase, ", "))
 		}
+	} else if len(d.Models) >= 2 && len(d.Extents) >= 2 {
+		// kendallW's denominator is 0 only when every extent ties every
+		// model: there is no order to agree on.
+		s += " Kendall's W is undefined: the models tie on every extent."
 	}
 	return s
 }

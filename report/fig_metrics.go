@@ -303,12 +303,16 @@ func metricsCaption(r *Results) string {
 		if st.Iterations >= 2 {
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
 		}
-		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (the published bootstrap)%s; "+
+		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",
-			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bar)
+			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
 	}
-	c += "Omission and predicted area at a threshold have no bar: the threshold comes from the training records alone. " +
+	c += "Omission and predicted area at a threshold have no bar. The predicted area has no sampling error (the threshold comes from the training records alone); " +
+		"the omission rate does vary with the test records, and its paired differences with their intervals are under Analysis. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
 		"Extents that were not scored are left out."
+	if len(nulls(r)) > 0 {
+		c += " " + nullsInMetricsCaption
+	}
 	return c
 }

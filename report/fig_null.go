@@ -127,7 +127,7 @@ func nullGapFigures(r *Results) []figure {
 	}
 	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale). " +
-			"Vertical bars: 95% interval from the per-point placements. Bars wholly above 0: the model beats the null on that extent.",
+			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
 		W: twoColumns, H: 90 * vg.Millimeter}
 	f.draw = func(c draw.Canvas) error {
 		p, items, err := nullGapPlot(r, f.W-vg.Points(30))

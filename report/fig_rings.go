@@ -208,7 +208,11 @@ func (w *chainWaterfall) rowValue(i, k int) string {
 func (s ringSeg) title(models int) string {
 	t := "nested chain " + s.w.cs[0].Chain
 	if len(s.w.cs) < models || s.w.models[0] < 0 {
-		t += ", model"
+		if s.w.models[0] < 0 {
+			t += ", null" // a null has a panel of its own
+		} else {
+			t += ", model"
+		}
 		for q, c := range s.w.cs {
 			if q > 0 {
 				t += ","

@@ -101,6 +101,9 @@ func rankingClause(rk ModelRanking) string {
 		a, b, better, worse = b, a, worse, better
 	}
 	n := rk.Extents
+	if rk.identical() {
+		return fmt.Sprintf("%s and %s score the same on all %d extent%s", rk.Model, rk.Other, n, plural(n))
+	}
 	if better == 0 {
 		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, plural(n))
 	}
@@ -190,7 +193,13 @@ func headline(a *analysis, s *Sensitivity) string {
 				continue
 			}
 			against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
-			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s and is %s", m, f3(sp.Min), f3(sp.Max), verdictPhrase(mv)))
+			below := ""
+			if sp.Max < 0.5 {
+				// Worse than a random ranking everywhere (point estimates):
+				// the range alone leaves the reader to notice it.
+				below = " (below 0.5, the AUC of a random ranking, on every extent)"
+			}
+			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
 		}
 		if len(parts) == 0 {
 			b.WriteString("no model has an AUC.")
@@ -222,7 +231,10 @@ func headline(a *analysis, s *Sensitivity) string {
 	}
 	b.WriteString(aboveNullHeadline(s))
 	if s.Independence.Warn {
-		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score is likely inflated.", pct(s.Independence.NearShare), NearCells)
+		// Optimistic rather than "inflated" (a lower omission is the
+		// optimistic side), and only where test points enter: the
+		// predicted area does not use them.
+		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score computed from the test points is likely optimistic.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()
 }

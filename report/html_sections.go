@@ -5,13 +5,17 @@ import (
 	"strconv"
 	"strings"
 
+	"areasweep/extent/vocab"
 	"areasweep/metrics"
 )
 
 // analysisView is the page's Analysis section. Optional parts are nil
 // when the run has none.
 type analysisView struct {
-	BaseExtent      string
+	BaseExtent string
+	// StandIn, when the base extent could not be scored, says that
+	// BaseExtent stands in for it and why; "" otherwise.
+	StandIn         string
 	PairedResamples int
 	MinPairedPoints int
 	// MapModel is the model whose omitted test points the maps mark, ""
@@ -62,6 +66,12 @@ func analysisSection(r *Results) analysisView {
 		label[m.Key] = m.Label
 	}
 	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints}
+	if s.BaseExtent != vocab.BaseID {
+		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
+		if v.StandIn == "" {
+			v.StandIn = ", the first scored extent"
+		}
+	}
 	if _, ok := mapFigure(r); ok && len(r.Models) > 0 {
 		v.MapModel = r.Models[0].Name
 	}

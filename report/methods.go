@@ -115,16 +115,18 @@ func methodsText(r *Results) string {
 	}
 	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from the published bootstrap of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
-			fmtList(st.E, ""), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
+			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
 		fmt.Fprintf(&b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
 	}
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
+	// The predicted area is judged like the other scores: say what it is.
+	b.WriteString("; the predicted area, the share of the extent's area at or above the minimum training presence")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, "; and the continuous Boyce index (Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(&b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
 		for _, m := range r.Models {
 			if m.NullKind == NullDistance {
 				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
@@ -134,9 +136,9 @@ func methodsText(r *Results) string {
 	}
 	b.WriteString(".")
 	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(&b, " Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", st.PairedResamples)
-	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from the base extent (%s) lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records was not judged.",
-		s.BaseExtent, fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
+	fmt.Fprintf(&b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
+	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -166,6 +168,72 @@ func methodsText(r *Results) string {
 	return b.String()
 }
 
+// referenceText names the extent every difference is taken from: the
+// base extent as format says it (format holds one %s for its id), or,
+// when the base extent could not be scored and the first scored extent
+// stands in for it (BaseExtent), that extent named as the reference with
+// the reason the base extent was left out.
+func referenceText(s *Sensitivity, format string) string {
+	if s.BaseExtent == vocab.BaseID {
+		return fmt.Sprintf(format, s.BaseExtent)
+	}
+	why := ""
+	for _, e := range s.SkippedExtents {
+		if e.ID == vocab.BaseID {
+			why = fmt.Sprintf(", in place of the base extent %s (left out: %s)", e.ID, e.Reason)
+		}
+	}
+	return fmt.Sprintf("the reference extent %s%s", s.BaseExtent, why)
+}
+
+// referenceWord is "the base extent", or "the reference extent" when
+// another extent stands in for it (referenceText).
+func referenceWord(s *Sensitivity) string {
+	if s.BaseExtent == vocab.BaseID {
+		return "the base extent"
+	}
+	return "the reference extent"
+}
+
+// bootstrapName names the partial ROC bootstrap of settings st: "the
+// published bootstrap" when it draws the published 50% of the test
+// records (Peterson et al. 2008), else "a bootstrap like the published
+// one (which draws 50%)", so that another --fraction is not passed off as
+// the published procedure.
+func bootstrapName(st Settings) string {
+	if st.ResampleFraction == 0.5 {
+		return "the published bootstrap"
+	}
+	return "a bootstrap like the published one (which draws 50%)"
+}
+
+// bootstrapNote is bootstrapName inside parentheses: "the published
+// bootstrap", or "the published bootstrap draws 50%".
+func bootstrapNote(st Settings) string {
+	if st.ResampleFraction == 0.5 {
+		return "the published bootstrap"
+	}
+	return "the published bootstrap draws 50%"
+}
+
+// pairedWhat names the paired differences the run formed: between the
+// extents of one model always, between models on one extent only when
+// there are two models or more, and between a model and a null when a
+// null was scored.
+func pairedWhat(s *Sensitivity) string {
+	parts := []string{"between extents of one model"}
+	if len(s.ModelNames) >= 2 {
+		parts = append(parts, "between models on one extent")
+	}
+	if len(s.AboveNull) > 0 {
+		parts = append(parts, "between a model and a null on one extent")
+	}
+	if len(parts) == 1 {
+		return "Differences " + parts[0]
+	}
+	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ") + ","
+}
+
 func plural(n int) string {
 	if n == 1 {
 		return ""
@@ -180,6 +248,7 @@ const hijmans2012 = "Hijmans, R.J. (2012) Cross-validation of species distributi
 
 var references = []string{
 	"Anderson, R.P., Lew, D. & Peterson, A.T. (2003) Evaluating predictive models of species' distributions: criteria for selecting optimal models. Ecological Modelling 162: 211-232.",
+	"Boyce, M.S., Vernier, P.R., Nielsen, S.E. & Schmiegelow, F.K.A. (2002) Evaluating resource selection functions. Ecological Modelling 157: 281-300.",
 	"DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Comparing the areas under two or more correlated receiver operating characteristic curves: a nonparametric approach. Biometrics 44: 837-845.",
 	"Efron, B. & Tibshirani, R.J. (1993) An Introduction to the Bootstrap. Chapman & Hall, New York.",
 	"Hanley, J.A. & McNeil, B.J. (1982) The meaning and use of the area under a receiver operating characteristic (ROC) curve. Radiology 143: 29-36.",
@@ -224,7 +293,9 @@ func resultNumbers(r *Results) string {
 		out = strings.Join(parts, ". ") + "."
 	}
 	for _, rk := range s.Rankings {
-		if rk.Metric == "auc" && rk.Extents > 0 {
+		if rk.Metric == "auc" && rk.identical() {
+			out += fmt.Sprintf(" By AUC, %s and %s scored the same on all %d extent%s (every paired difference 0).", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
 	}
@@ -313,7 +384,7 @@ func reviewerText(r *Results) string {
 			fmt.Fprintf(&b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(&b, " (the base extent, %s, and %d other%s) %s", s.BaseExtent, n-1, plural(n-1), areaRange(lo, hi))
+			fmt.Fprintf(&b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, plural(n-1), areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {
@@ -325,8 +396,8 @@ func reviewerText(r *Results) string {
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(&b, "For each score we compared every extent with the base extent on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
-			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
+		fmt.Fprintf(&b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
+			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
 	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
@@ -351,24 +422,37 @@ func reviewerText(r *Results) string {
 		robust, sensitive, undetermined = nil, nil, nil
 		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
+	// With one model, "for at least one model" and "for every model"
+	// would say less than the numbers: name it.
+	some, every := "for at least one model", "for every model"
+	if len(s.ModelNames) == 1 {
+		some, every = "for "+s.ModelNames[0], "for "+s.ModelNames[0]
+	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance for at least one model. ", upperFirst(joinList(sensitive)))
+		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
 	}
 	if len(robust) > 0 {
-		fmt.Fprintf(&b, "%s stayed within the tolerance for every model. ", upperFirst(joinList(robust)))
+		fmt.Fprintf(&b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
 	}
 	if len(undetermined) > 0 {
 		fmt.Fprintf(&b, "For %s our test records are too few (or the score undefined) to tell. ", joinList(undetermined))
 	}
 	for _, rk := range s.Rankings {
-		if rk.Metric == "auc" && rk.Extents > 0 {
+		if rk.Metric == "auc" && rk.identical() {
+			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse)
 		}
 	}
 	b.WriteString(reviewerNullText(s))
-	b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	if len(s.ModelNames) >= 2 {
+		b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	} else {
+		// One model: there is no model comparison to restrict.
+		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	}
 	if s.Independence.Warn {
-		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so all scores are likely optimistic.", pct(s.Independence.NearShare), NearCells)
+		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()
 }
@@ -385,9 +469,9 @@ func reviewerNullText(s *Sensitivity) string {
 		return ""
 	}
 	type byNull struct {
-		name, kind string
-		beat, not  []string
-		few        []string
+		name, kind              string
+		above, not, below, same []string
+		few                     []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -399,14 +483,18 @@ func reviewerNullText(s *Sensitivity) string {
 			index[an.Null] = n
 			ns = append(ns, n)
 		}
-		part := fmt.Sprintf("%s (%s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
-		if an.BaseReading == ReadingTooFew {
+		// The number is the difference from the null, not the AUC.
+		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		switch {
+		case an.BaseReading == ReadingTooFew:
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
-			continue
-		}
-		if an.BaseReading == ReadingAbove {
-			n.beat = append(n.beat, part)
-		} else {
+		case g.zero():
+			n.same = append(n.same, an.Model)
+		case an.BaseReading == ReadingAbove:
+			n.above = append(n.above, part)
+		case an.BaseReading == ReadingBelow:
+			n.below = append(n.below, part)
+		default:
 			n.not = append(n.not, part)
 		}
 	}
@@ -419,24 +507,43 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 	}
 	var b strings.Builder
+	on := referenceWord(s) // the extent the base readings are on
 	fmt.Fprintf(&b, "We also scored %s on the same extents and test records. ", joinList(what))
+	// aucOf is "the AUC of a is" or "the AUCs of a and b are".
+	aucOf := func(models []string) string {
+		if len(models) > 1 {
+			return "the AUCs of " + joinList(models) + " are"
+		}
+		return "the AUC of " + models[0] + " is"
+	}
 	for _, n := range ns {
-		if len(n.beat) > 0 {
-			fmt.Fprintf(&b, "On the base extent the AUC of %s is above that of %s beyond noise. ", joinList(n.beat), n.name)
+		holds := "what " + n.name + " holds"
+		if n.kind == NullDistance {
+			holds = "the geography of the records"
+		}
+		if len(n.above) > 0 {
+			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise. ", on, aucOf(n.above), n.name)
+		}
+		if len(n.same) > 0 {
+			// Every placement equal to the null's: a copy of it.
+			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", on, aucOf(n.same), n.name, holds)
+		}
+		if len(n.below) > 0 {
+			// Wholly below 0: the null ranks the test records better.
+			who := "the model does"
+			if len(n.below) > 1 {
+				who = "the models do"
+			}
+			fmt.Fprintf(&b, "On %s %s below that of %s beyond noise, so on that extent %s alone ranks the test records above the background better than %s. ",
+				on, aucOf(n.below), n.name, holds, who)
 		}
 		if len(n.not) > 0 {
-			verb := "does"
-			if len(n.not) > 1 {
-				verb = "do"
-			}
-			lacks := "what " + n.name + " holds"
-			if n.kind == NullDistance {
-				lacks = "the geography of the records"
-			}
-			fmt.Fprintf(&b, "On the base extent the AUC of %s %s not exceed that of %s beyond noise, so on that extent AUC shows no skill beyond %s. ", joinList(n.not), verb, n.name, lacks)
+			// An interval that includes 0: absence of evidence, not
+			// evidence that the model has no skill.
+			fmt.Fprintf(&b, "On %s %s not above that of %s beyond noise, so on that extent AUC gives no evidence of skill beyond %s. ", on, aucOf(n.not), n.name, holds)
 		}
 		if len(n.few) > 0 {
-			fmt.Fprintf(&b, "On the base extent the test records are too few to compare %s with %s (we judge no difference on fewer than %d). ", joinList(n.few), n.name, MinPairedPoints)
+			fmt.Fprintf(&b, "On %s the test records are too few to compare %s with %s (we do not judge a difference on fewer than %d common test records, our cut-off). ", on, joinList(n.few), n.name, MinPairedPoints)
 		}
 	}
 	return b.String()

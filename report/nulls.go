@@ -193,3 +193,14 @@ func rocPanelTitle(r *Results, name string) string {
 	}
 	return "model " + name
 }
+
+// nullsInMetricsCaption says how the scores-against-area figure draws the
+// nulls: at their full-sample values, with no bar (no resample SD is
+// drawn for them) and not shifted along the area axis.
+const nullsInMetricsCaption = "Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."
+
+// nullGapBarsCaption reads the model-minus-null figure's bars both ways
+// (a bar wholly below 0 is as much a finding as one above) and says that
+// the pairs are drawn a few percent apart along the area axis.
+const nullGapBarsCaption = "Bars wholly above 0: the model beats the null on that extent; wholly below 0: the null beats the model; " +
+	"across 0: no difference beyond noise. The points of each model and null pair are shifted a few percent apart along the area axis so that their bars do not overlap."

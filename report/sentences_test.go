@@ -275,9 +275,9 @@ func TestReviewerNulls(t *testing.T) {
 		want, notWant []string
 	}{
 		{"distance-only null", NullDistance,
-			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no skill beyond the geography of the records"}, nil},
+			[]string{"a null that knows only where the training records are (" + DistanceNullName, "no evidence of skill beyond the geography of the records"}, nil},
 		{"user null", "user",
-			[]string{"We also scored the null " + DistanceNullName + " on", "no skill beyond what " + DistanceNullName + " holds"},
+			[]string{"We also scored the null " + DistanceNullName + " on", "no evidence of skill beyond what " + DistanceNullName + " holds"},
 			[]string{"knows only where the training records are", "geography", "Hijmans"}},
 	}
 	for _, c := range cases {
@@ -371,7 +371,8 @@ func TestMethodsTextSituations(t *testing.T) {
 			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
 				"on 8 evaluation extents (the base extent, base, and 7 others) from 28.2 to 231 thousand km²",
 				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05, Boyce index ±0.1; areasweep's defaults, not a published standard)",
-				"and undetermined otherwise; a difference on fewer than 10 common test records was not judged.",
+				"and undetermined otherwise; a difference on fewer than 10 common test records (our cut-off) was not judged, and the intervals were not adjusted",
+				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
 				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
 			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,"}},
@@ -632,7 +633,7 @@ func TestChainSentenceAgainstTheChange(t *testing.T) {
 			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.75, AUCOuter: 0.78, AUCRing: 0.81, AUCRingDefined: true, Change: 0.03, Share: 3},
 			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.78, AUCOuter: 0.81, AUCRing: 0.84, AUCRingDefined: true, Change: 0.03, Share: 3},
 		}}
-	got := chainSentence(&cs)
+	got := chainSentence(&cs, "model")
 	if strings.Contains(got, "-500% of the gain comes") || !strings.Contains(got, "the largest step goes against the gain (-500% of it): the ring b minus a") {
 		t.Errorf("%s", got)
 	}
@@ -650,7 +651,7 @@ func TestRankingSentenceReasons(t *testing.T) {
 		{"undefined on every extent", func(p *Paired) { p.Defined = false },
 			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
 		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
-			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points.", ""},
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points (our cut-off).", ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -877,4 +878,564 @@ func checkWords(t *testing.T, what, text string, want, notWant []string) {
 			t.Errorf("%s says %q:\n%s", what, w, text)
 		}
 	}
+}
+
+// The cases below come from studies the demo does not cover: a model
+// below the distance-only null, a single model with a null of the user's,
+// 8 and 15 test points, test points beside the training points, an
+// extent without test points, copies of one model and a constant model.
+
+// TestNullGapEndsNamed: the extents the model-minus-null gap is described
+// between are named for what they are. When the difference is undefined
+// on the smallest extent, the next one is "the smallest extent where it is
+// defined", not "the smallest extent"; an end resting on fewer than 10
+// common test points says so; and when no extent has 10, the counts of
+// "above, within, below" (all 0) give way to saying that no gap is read.
+func TestNullGapEndsNamed(t *testing.T) {
+	smallest := func(r *Results) string {
+		id, lo := "", math.Inf(1)
+		for _, e := range r.Extents {
+			if e.Status == vocab.StatusOK && findScore(r, "good", e.ID) != nil && e.AreaKm2 < lo {
+				id, lo = e.ID, e.AreaKm2
+			}
+		}
+		return id
+	}
+	cases := []struct {
+		name          string
+		build         func(r *Results, small string)
+		want, notWant []string
+	}{
+		{name: "undefined on the smallest extent",
+			build: func(r *Results, small string) {
+				setPaired(r, "auc", PairedKindNull, "good", small, func(p *Paired) { p.Defined = false })
+			},
+			want:    []string{"(the smallest extent where it is defined)", "(the largest)"},
+			notWant: []string{"(the smallest extent) to"}},
+		{name: "too few common test points on the smallest extent",
+			build: func(r *Results, small string) {
+				setPaired(r, "auc", PairedKindNull, "good", small, func(p *Paired) { p.CommonPoints = 5 })
+			},
+			want: []string{"(the smallest extent, on 5 common test points, not read)"}},
+		{name: "too few common test points everywhere",
+			build: func(r *Results, small string) {
+				for i := range r.Paired {
+					if r.Paired[i].Kind == PairedKindNull {
+						r.Paired[i].CommonPoints = 8
+					}
+				}
+			},
+			want:    []string{"(the largest, on 8 common test points, not read)", "no extent has the 10 common test points we read a gap on (our cut-off)"},
+			notWant: []string{"above the null beyond noise on 0, within noise on 0 and below on 0"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			c.build(r, smallest(r))
+			s := analyzed(t, r)
+			for _, an := range s.AboveNull {
+				if an.Metric == "auc" && an.Model == "good" {
+					checkWords(t, "sentence", an.Sentence, c.want, c.notWant)
+					checkWords(t, "headline", s.Headline, c.want[:1], c.notWant)
+					return
+				}
+			}
+			t.Fatal("no AUC comparison of good with the null")
+		})
+	}
+}
+
+// TestTooFewAllZero: a verdict left undetermined by differences on too
+// few test points, every difference being 0, does not name one extent's
+// "+0.000" as the largest.
+func TestTooFewAllZero(t *testing.T) {
+	r := loadSample(t)
+	const metric = "omission_minimum_training_presence"
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Diff, p.Low, p.High = 0, 0, 0
+		}
+	}
+	if setPaired(r, metric, PairedKindExtent, "good", "hull", func(p *Paired) { p.CommonPoints = 6 }) != 1 {
+		t.Fatal("no record of good on hull")
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(metric, "good")
+	if mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"although every difference from base is 0", "Not judged, on fewer than 10 common test points (our cut-off): hull (6)"},
+		[]string{"the largest difference from base is +0.000"})
+}
+
+// TestIdenticalModels: two models whose every paired difference and its
+// interval are 0 (copies of one raster) "score the same"; "within noise"
+// would say there is noise between them.
+func TestIdenticalModels(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" {
+			p.Diff, p.Low, p.High, p.SE = 0, 0, 0, 0
+		}
+	}
+	s := analyzed(t, r)
+	var rk *ModelRanking
+	for i := range s.Rankings {
+		if s.Rankings[i].Metric == "auc" && s.Rankings[i].Model == "good" && s.Rankings[i].Other == "truncated" {
+			rk = &s.Rankings[i]
+		}
+	}
+	if rk == nil {
+		t.Fatal("no AUC ranking of good and truncated")
+	}
+	checkWords(t, "ranking", rk.Sentence, []string{"AUC: good and truncated score the same on all 6 extents compared (every paired difference, and its interval, is 0)."},
+		[]string{"within noise"})
+	checkWords(t, "headline", s.Headline, []string{"By AUC, good and truncated score the same on all 6 extents;"}, []string{"good and truncated differ beyond noise"})
+	checkWords(t, "methods", methodsText(r), []string{"By AUC, good and truncated scored the same on all 6 extents (every paired difference 0).",
+		"By AUC, good and truncated scored the same on all 6 extents. "}, []string{"good was better than truncated beyond noise on 0", "good scored above truncated"})
+}
+
+// TestChainsStartFromScores: a chain's first AUC is the score on its first
+// member. A null's chain took the first ring's AUCInner (the outer
+// extent's test points against the inner cells) because only the models'
+// scores were looked up, which missed the step of test points; and a
+// chain whose first member has no score (no test point inside) started
+// from an AUC that member does not have.
+func TestChainsStartFromScores(t *testing.T) {
+	t.Run("null", func(t *testing.T) {
+		r := withNull(t)
+		for _, g := range r.Rings {
+			if g.Model == "good" {
+				g.Model = DistanceNullName
+				r.Rings = append(r.Rings, g)
+			}
+		}
+		s := analyzed(t, r)
+		for _, cs := range s.Chains {
+			if cs.Model != DistanceNullName || cs.Chain != "points" {
+				continue
+			}
+			// withNull gives the null an AUC of 0.999 on every extent.
+			if cs.StartAUC != 0.999 || cs.Steps[0].Kind != StepTestPoints {
+				t.Errorf("start %v, first step %s; want the null's score 0.999 and a step of test points", cs.StartAUC, cs.Steps[0].Kind)
+			}
+			checkWords(t, "sentence", cs.Sentence, []string{"Along chain points, AUC of null " + DistanceNullName + " goes from 0.999 (points_b25"}, []string{"of model " + DistanceNullName})
+			return
+		}
+		t.Fatal("no chain of the null")
+	})
+	t.Run("first member not scored", func(t *testing.T) {
+		r := loadSample(t)
+		for i := range r.Scores {
+			if r.Scores[i].Model == "good" && r.Scores[i].Extent == "base" {
+				r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+			}
+		}
+		s := analyzed(t, r)
+		for _, cs := range s.Chains {
+			if cs.Model != "good" || cs.Chain != "region" {
+				continue
+			}
+			if cs.Members[0] != "region_b50" || cs.StartAUC != findScore(r, "good", "region_b50").AUC {
+				t.Errorf("chain starts at %s with %v", cs.Members[0], cs.StartAUC)
+			}
+			checkWords(t, "sentence", cs.Sentence, []string{"goes from 0.916 (region_b50"}, []string{"(base,"})
+			return
+		}
+		t.Fatal("no region chain of good")
+	})
+}
+
+// TestConstantModelNotTruncated: a model with one value on every valid
+// cell is constant, not truncated, and the partial ROC's remedy for
+// truncated predictions does not apply to it.
+func TestConstantModelNotTruncated(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Models {
+		if r.Models[i].Name == "broad" {
+			r.Models[i].FloorShare = 1
+		}
+	}
+	s := analyzed(t, r)
+	for _, tc := range s.Truncation {
+		if tc.Model == "broad" {
+			checkWords(t, "sentence", tc.Sentence, []string{"Model broad is constant: its one value covers 100% of the valid area"},
+				[]string{"truncated", "Peterson"})
+			return
+		}
+	}
+	t.Fatal("no truncation check of broad")
+}
+
+// TestIndependenceWording: test points near training points make the
+// scores computed from them optimistic (a lower omission rate is
+// optimistic, not "inflated"; the predicted area uses no test point), and
+// the run does not know that the split was random.
+func TestIndependenceWording(t *testing.T) {
+	r := analyzedSample(t)
+	s := r.Sensitivity
+	if !s.Independence.Warn {
+		t.Fatal("the sample no longer warns of test points near training points")
+	}
+	notWant := []string{"inflate", "every score is", "all scores are", "a random split"}
+	checkWords(t, "headline", s.Headline, []string{"so every score computed from the test points is likely optimistic."}, notWant)
+	checkWords(t, "independence", s.Independence.Sentence, []string{"unlikely to be independent of them (spatial autocorrelation), so every score computed from the test points is likely optimistic."}, notWant)
+	checkWords(t, "reply", reviewerText(r), []string{"so every score computed from the test records is likely optimistic."}, notWant)
+}
+
+// TestSingleModelText: with one model there is no model comparison, so
+// the methods and the reply name the model instead of "at least one
+// model" and "every model", and do not describe differences between
+// models; a null's paired differences are described as such.
+func TestSingleModelText(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	keep := func(m string) bool { return m == "good" || m == DistanceNullName }
+	var ms []Model
+	for _, m := range r.Models {
+		if keep(m.Name) {
+			ms = append(ms, m)
+		}
+	}
+	r.Models = ms
+	var sc []Score
+	for _, s := range r.Scores {
+		if keep(s.Model) {
+			sc = append(sc, s)
+		}
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if keep(p.Model) && keep(p.OtherModel) {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	var rs []Ring
+	for _, g := range r.Rings {
+		if keep(g.Model) {
+			rs = append(rs, g)
+		}
+	}
+	r.Rings = rs
+	analyzed(t, r)
+	checkWords(t, "methods", methodsText(r),
+		[]string{"moved with the extent by more than the tolerance for good.", "stayed within the tolerance for good.",
+			"Differences between extents of one model, and between a model and a null on one extent, were taken",
+			"We therefore report every score together with the extent it was computed on and treat the values"},
+		[]string{"at least one model", "for every model", "between models on one extent", "compare models only within one extent"})
+}
+
+// TestBoyceCited: the Boyce index keeps its name and its origin: the
+// methods cite Boyce et al. (2002) beside Hirzel et al. (2006), whose
+// continuous form is computed, and list both among the references.
+func TestBoyceCited(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{"the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006;",
+		"- Boyce, M.S., Vernier, P.R., Nielsen, S.E. & Schmiegelow, F.K.A. (2002) Evaluating resource selection functions. Ecological Modelling 157: 281-300."}, nil)
+}
+
+// TestHeadlineBelowRandom: a model whose AUC is below 0.5 on every extent
+// ranks the test records below the background more often than not; the
+// headline says so rather than leave it to the reader of the range.
+func TestHeadlineBelowRandom(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" && r.Scores[i].Scored {
+			r.Scores[i].AUC = 1 - r.Scores[i].AUC
+		}
+	}
+	s := analyzed(t, r)
+	sp := s.findSpread("auc", "broad")
+	want := fmt.Sprintf("AUC of broad ranged %s–%s (below 0.5, the AUC of a random ranking, on every extent) and is", f3(sp.Min), f3(sp.Max))
+	checkWords(t, "headline", s.Headline, []string{want}, []string{"good ranged 0.798–0.966 (below 0.5"})
+}
+
+// TestNullCaptions: the captions of the figures that draw nulls say how:
+// the scores-against-area figure draws them without bars (the caption
+// described the bars of "each model" only), and the model-minus-null
+// figure reads a bar wholly below 0 as well as one above it and says that
+// its pairs are shifted along the area axis.
+func TestNullCaptions(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	analyzed(t, r)
+	checkWords(t, "metrics caption", metricsCaption(r), []string{"Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."}, nil)
+	checkWords(t, "metrics caption without nulls", metricsCaption(loadSample(t)), nil, []string{"Nulls:"})
+	for _, f := range nullGapFigures(r) {
+		checkWords(t, "null caption", f.Caption, []string{"wholly below 0: the null beats the model", "shifted a few percent apart along the area axis"}, nil)
+		return
+	}
+	t.Fatal("no model-minus-null figure")
+}
+
+// TestVerdictMultiplicity: the verdicts read one unadjusted 95% interval
+// per extent ("extent-sensitive" when any lies outside the tolerance), so
+// the methods and the page say that the intervals are not adjusted for
+// the number of extents.
+func TestVerdictMultiplicity(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{"was not judged, and the intervals were not adjusted for the number of extents compared."}, nil)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"The intervals are per extent, not adjusted for the number of extents"}, nil)
+}
+
+// TestModelSameAsNull: a model whose every paired difference from a null,
+// and its interval, is 0 (a copy of the null) "is the same as" the null;
+// "not above beyond noise" and a gap "moving" from +0.000 to +0.000
+// would speak of noise and movement where there is none.
+func TestModelSameAsNull(t *testing.T) {
+	r := withNull(t)
+	ps := nullPaired(r)
+	for i := range ps {
+		ps[i].A, ps[i].B, ps[i].Diff, ps[i].SE, ps[i].Low, ps[i].High = 0.8, 0.8, 0, 0, 0, 0
+	}
+	r.Paired = append(r.Paired, ps...)
+	s := analyzed(t, r)
+	for _, an := range s.AboveNull {
+		if an.Metric != "auc" || an.Model != "good" {
+			continue
+		}
+		notWant := []string{"not above", "moves from", "runs from", "within noise"}
+		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null): the difference and its 95% interval are 0 (0.800 against 0.800).",
+			"are 0 on every one."}, notWant)
+		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (AUC difference and its 95% interval 0); the gap is 0 on every extent"}, notWant)
+		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName + " (difference and interval 0)"}, []string{"not above"})
+		return
+	}
+	t.Fatal("no AUC comparison of good with the null")
+}
+
+// TestKendallWUndefinedSaysWhy: when every extent ties every model, the
+// table shows no Kendall's W; the sentence says why instead of leaving it
+// out silently.
+func TestKendallWUndefinedSaysWhy(t *testing.T) {
+	r := loadSample(t)
+	good := map[string]float64{}
+	for _, sc := range r.Scores {
+		if sc.Model == "good" {
+			good[sc.Extent] = sc.AUC
+		}
+	}
+	for i := range r.Scores {
+		r.Scores[i].AUC = good[r.Scores[i].Extent]
+	}
+	s := analyzed(t, r)
+	d := s.findDecomposition("auc")
+	if d == nil || !d.Defined || d.KendallWDefined {
+		t.Fatalf("decomposition %+v", d)
+	}
+	checkWords(t, "sentence", d.Sentence, []string{"Kendall's W is undefined: the models tie on every extent."}, nil)
+}
+
+// TestExplorerPartialROCLabel: the extent explorer shows the full-sample
+// partial ROC ratio with the bootstrap's percentiles; it called the value
+// the "published half-size bootstrap", which it is not, and the resamples
+// are half-size only when --fraction is 0.5.
+func TestExplorerPartialROCLabel(t *testing.T) {
+	r := analyzedSample(t)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{`(full sample; the published bootstrap's 2.5th to 97.5th percentile `}, []string{"half-size"})
+}
+
+// TestBootstrapNamedByFraction: the partial ROC bootstrap is "the
+// published bootstrap" (Peterson et al. 2008) only when it draws 50% of
+// the test records; another --fraction is named as a variant of it.
+func TestBootstrapNamedByFraction(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods at 0.5", methodsText(r), []string{"from the published bootstrap of 200 resamples of 50% of the test records"}, nil)
+	checkWords(t, "caption at 0.5", metricsCaption(r), []string{"of 50% of the test records (the published bootstrap)"}, nil)
+	r.Settings.ResampleFraction = 0.3
+	notWant := []string{"the published bootstrap of", "(the published bootstrap)"}
+	checkWords(t, "methods at 0.3", methodsText(r), []string{"from a bootstrap like the published one (which draws 50%) of 200 resamples of 30% of the test records"}, notWant)
+	checkWords(t, "caption at 0.3", metricsCaption(r), []string{"of 30% of the test records (the published bootstrap draws 50%)"}, notWant)
+}
+
+// TestRingPanelNamesNull: the ring figure's panel of a null, and the
+// caption of its continuation page, call it a null, as the chain's
+// sentence does, not a model.
+func TestRingPanelNamesNull(t *testing.T) {
+	r := withNull(t)
+	for _, g := range r.Rings {
+		if g.Model == "good" {
+			g.Model = DistanceNullName
+			r.Rings = append(r.Rings, g)
+		}
+	}
+	analyzed(t, r)
+	var caps []string
+	for _, f := range figures(r) {
+		caps = append(caps, f.Caption)
+	}
+	seen := false
+	for i := range r.Sensitivity.Chains {
+		cs := &r.Sensitivity.Chains[i]
+		if cs.Model != DistanceNullName {
+			continue
+		}
+		seg := ringSeg{w: &chainWaterfall{cs: []*ChainSummary{cs}, models: []int{-1}}}
+		title := seg.title(len(r.Sensitivity.ModelNames))
+		checkWords(t, "panel title", title, []string{"nested chain " + cs.Chain + ", null " + DistanceNullName}, []string{"model"})
+		seen = true
+	}
+	if !seen {
+		t.Fatal("no chain of the null")
+	}
+	checkWords(t, "captions", strings.Join(caps, "\n"), nil, []string{"model " + DistanceNullName})
+}
+
+// TestTenPointCutoffOurs: every sentence that applies the 10-common-point
+// rule names it as our cut-off (the model comparisons, the note above
+// them, the gaps against a null, the methods).
+func TestTenPointCutoffOurs(t *testing.T) {
+	r := withNull(t)
+	ps := nullPaired(r)
+	ps[0].CommonPoints = 5
+	r.Paired = append(r.Paired, ps...)
+	setPaired(r, "auc", PairedKindModel, "good", "base", func(p *Paired) { p.CommonPoints = 5 })
+	s := analyzed(t, r)
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Model == "good" && rk.Other == "truncated" {
+			checkWords(t, "ranking", rk.Sentence, []string{"Not counted: 1 extent where they share fewer than 10 test points (our cut-off)."}, nil)
+		}
+	}
+	for _, an := range s.AboveNull {
+		if an.Metric == "auc" && an.Model == "good" {
+			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off)"}, nil)
+		}
+	}
+	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (our cut-off) was not judged"}, nil)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"share fewer than 10 test points (our cut-off) are not counted"}, nil)
+}
+
+// TestMethodsDescribeWhatWasComputed: the methods define every score they
+// judge (the predicted area was judged and given a tolerance but never
+// defined) and describe the Boyce window areas as computed: the area at
+// each presence value and fixed threshold is counted exactly, not spread
+// over its histogram bin (metrics.Boyce since the window areas were made
+// exact at those values).
+func TestMethodsDescribeWhatWasComputed(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{
+		"; the predicted area, the share of the extent's area at or above the minimum training presence;",
+		"each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value"}, nil)
+}
+
+// TestUndeterminedSaysWhere: an undetermined verdict quotes the largest
+// difference, whose interval may lie inside the tolerance while another
+// extent's straddles it; the sentence says on how many extents the
+// interval straddles the tolerance and names the one reaching furthest.
+func TestUndeterminedSaysWhere(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Diff, p.Low, p.High = 0.01, -0.02, 0.04
+		}
+	}
+	setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, -0.08, 0.03 })
+	setPaired(r, "boyce", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, 0.005, 0.15 })
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("boyce", "good")
+	if mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"the largest difference from base is -0.050 on hull (95% interval -0.080 to +0.030); the 95% interval straddles ±0.1 on 1 of",
+		"reaching furthest beyond it with +0.020 on whole (95% interval +0.005 to +0.150)"}, nil)
+}
+
+// TestReplyTooFewAgainstNull: with too few common test records on the
+// base extent, the reply says that no difference is judged there, not
+// "we judge no difference" (which reads as "we find none").
+func TestReplyTooFewAgainstNull(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.CommonPoints = 6 })
+	s := analyzed(t, r)
+	checkWords(t, "reply", reviewerNullText(s), []string{"too few to compare good (6 common test records) with " + DistanceNullName +
+		" (we do not judge a difference on fewer than 10 common test records, our cut-off)"}, []string{"we judge no difference"})
+}
+
+// TestReferenceExtentInPlaceOfBase: when the base extent holds no test
+// point, the first scored extent stands in for it; the verdicts, the
+// methods and the reply call that extent the reference extent and say
+// why, instead of calling it "the base extent".
+func TestReferenceExtentInPlaceOfBase(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	if s.BaseExtent == vocab.BaseID {
+		t.Fatalf("the reference extent is still %s", s.BaseExtent)
+	}
+	ref := s.BaseExtent
+	notWant := []string{"the base extent (" + ref + ")", "the base extent, " + ref, "with the base extent on", "On the base extent "}
+	checkWords(t, "verdict", s.Verdicts[0].Sentence, []string{"paired differences from the reference extent " + ref + ")"}, []string{"from the base extent"})
+	checkWords(t, "methods", methodsText(r), []string{
+		"its difference from the reference extent " + ref + ", in place of the base extent base (left out: ",
+		"we compared every extent with the reference extent on the test records both hold",
+		"On the reference extent the AUC of good"}, notWant)
+}
+
+// TestNoCommonPointsIsNotUndefined: an extent that shares no test point
+// with the base (one beside it, not around it) has a defined score; the
+// verdict says that no paired difference could be formed there, not that
+// the score "is undefined" on it.
+func TestNoCommonPointsIsNotUndefined(t *testing.T) {
+	r := loadSample(t)
+	setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = false, 0, 0, 0, 0
+	})
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	checkWords(t, "sentence", mv.Sentence, []string{"No paired difference from base could be formed on points_b25 (0 common test points)."},
+		[]string{"undefined on points_b25"})
+}
+
+// TestPageReferenceExtent: the page's Analysis heading and note call the
+// extent the differences are taken from the reference extent, and say
+// why, when the base extent could not be scored.
+func TestPageReferenceExtent(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the reference extent</h3>",
+		"minus the score on " + s.BaseExtent + ", in place of the base extent base (left out: "}, []string{"Difference from the base extent"})
+	plain, err := htmlPage(analyzedSample(t), nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page with base", string(plain), []string{"<h3>Difference from the base extent</h3>", "minus the score on base, on the test points"}, nil)
+}
+
+// TestMetricsCaptionOmissionUncertain: the scores figure draws no bar for
+// the omission rate, but the omission rate is computed from the test
+// records and so has sampling error (only the predicted area has none);
+// the caption gave the threshold's origin as the reason for both.
+func TestMetricsCaptionOmissionUncertain(t *testing.T) {
+	checkWords(t, "caption", metricsCaption(analyzedSample(t)), []string{"The predicted area has no sampling error",
+		"the omission rate does vary with the test records"}, []string{"have no bar: the threshold comes from the training records alone"})
 }

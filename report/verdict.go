@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // pairedFor returns the paired record of metric between (model, ext) and
@@ -146,7 +148,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
-		notOn = fmt.Sprintf(" It is undefined on %s.", joinList(mv.Undefined))
+		notOn = " " + upperFirst(a.undefinedText(m, model, mv)) + "."
 	}
 	within, largestWithin := "lies within "+tol+" with its 95% interval", largest
 	if exact {
@@ -166,11 +168,16 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	case allInside(definedDiffs(mv.Diffs)):
 		// Undetermined only because the score is undefined somewhere:
 		// the test points are not the reason.
-		mv.Sentence = fmt.Sprintf("%s is undetermined: it is undefined on %s, and every difference from %s that could be formed %s; %s.",
-			name, joinList(mv.Undefined), a.base, within, largestWithin)
+		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
+			name, a.undefinedText(m, model, mv), a.base, within, largestWithin)
+	case big.Diff == 0 && big.Low == 0 && big.High == 0:
+		// Undetermined only for the differences on too few test points,
+		// every one of them 0: no extent is "the largest".
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
+			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s.%s%s",
-			name, tol, a.base, differenceText(big, m.Tolerance), notOn, tooFewText(mv.Diffs))
+		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
+			name, tol, a.base, differenceText(big, m.Tolerance), straddleText(mv.Diffs, big, m.Tolerance), notOn, tooFewText(mv.Diffs))
 	}
 	return mv
 }
@@ -196,6 +203,62 @@ func differenceText(d ExtentDifference, tol float64) string {
 		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
 	}
 	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+}
+
+// undefinedText says where no difference from the base could be formed
+// and why: "it is undefined on X" where the score itself is undefined,
+// "no paired difference from base could be formed on Y (0 common test
+// points)" where the score is defined but the two extents share fewer
+// than two test points (an extent beside the base rather than around it).
+func (a *analysis) undefinedText(m MetricInfo, model string, mv ModelVerdict) string {
+	var undef, apart []string
+	for _, d := range mv.Diffs {
+		if d.Defined {
+			continue
+		}
+		if sc := a.score(model, d.Extent); sc != nil && d.CommonPoints < 2 {
+			if _, ok, _, _, _, _ := metricValue(m, sc); ok {
+				apart = append(apart, fmt.Sprintf("%s (%d common test point%s)", d.Extent, d.CommonPoints, plural(d.CommonPoints)))
+				continue
+			}
+		}
+		undef = append(undef, d.Extent)
+	}
+	var parts []string
+	if len(undef) > 0 {
+		parts = append(parts, "it is undefined on "+joinList(undef))
+	}
+	if len(apart) > 0 {
+		parts = append(parts, "no paired difference from "+mv.Base+" could be formed on "+joinList(apart))
+	}
+	return strings.Join(parts, ", and ")
+}
+
+// straddleText says on how many extents the 95% interval straddles ±tol,
+// which is what leaves a verdict undetermined, and names the one that
+// reaches furthest beyond the tolerance when that is not big (the largest
+// difference, already quoted): the largest difference's own interval may
+// lie inside the tolerance. "" when no interval straddles it.
+func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) string {
+	n := 0
+	var far *ExtentDifference
+	reach := func(d *ExtentDifference) float64 { return math.Max(math.Abs(d.Low), math.Abs(d.High)) }
+	for i := range ds {
+		if d := &ds[i]; d.Defined && d.Position == "overlapping" {
+			n++
+			if far == nil || reach(d) > reach(far) {
+				far = d
+			}
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	out := fmt.Sprintf("; the 95%% interval straddles ±%s on %d of %d extent%s", fmtG(tol), n, len(ds), plural(len(ds)))
+	if far.Extent != big.Extent {
+		out += ", reaching furthest beyond it with " + differenceText(*far, tol)
+	}
+	return out
 }
 
 // tooFewText names the differences left unjudged for resting on fewer
@@ -283,7 +346,13 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	if len(v.Undetermined) > 0 {
 		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
 	}
-	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from the base extent): %s.", upperFirst(m.Label), fmtG(m.Tolerance), strings.Join(parts, "; "))
+	from := "the base extent"
+	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID {
+		// The first scored extent stands in for a base extent that could
+		// not be scored: name it, not "the base extent".
+		from = "the reference extent " + mvs[0].Base
+	}
+	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
 	}
@@ -330,18 +399,45 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			}
 			switch {
 			case r.Extents == 0 && tooFew > 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points.", upperFirst(m.Label), ma, mb, MinPairedPoints)
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, MinPairedPoints)
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+			case r.identical():
+				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on all %d extent%s compared (every paired difference, and its interval, is 0).",
+					upperFirst(m.Label), ma, mb, r.Extents, plural(r.Extents))
+				if tooFew > 0 {
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
+				}
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
 				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points.", tooFew, plural(tooFew), MinPairedPoints)
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
 				}
 			}
 			out = append(out, r)
 		}
 	}
 	return out
+}
+
+// identical reports whether the two models of rk score the same on every
+// extent compared: each counted paired difference and both ends of its
+// interval are 0 (two copies of one model, say). "Within noise" would
+// understate that: there is no noise between them.
+func (rk ModelRanking) identical() bool {
+	if rk.Extents == 0 || rk.Better != 0 || rk.Worse != 0 {
+		return false
+	}
+	n := 0
+	for _, d := range rk.Diffs {
+		if !d.Defined || d.Position == positionTooFew {
+			continue
+		}
+		if d.Diff != 0 || d.Low != 0 || d.High != 0 {
+			return false
+		}
+		n++
+	}
+	return n == rk.Extents
 }

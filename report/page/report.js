@@ -165,7 +165,7 @@
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
         row("AUC", fx(c.auc, 3) + " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")");
-        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (published half-size bootstrap, 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
+        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (full sample; the published bootstrap's 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
           row("area predicted present at that threshold", fx(c.area_fraction, 3));

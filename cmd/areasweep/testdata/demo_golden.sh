@@ -67,6 +67,19 @@
 #     gap names its two extents "(the smallest extent)" and "(the
 #     largest)", as the summary's sentence does: results.json's
 #     sensitivity.headline only; every number and scores.csv unchanged);
+#   - rewritten on branch h13 (sentences under sensitivity reworded: a
+#     model below the null beyond noise "is below" it, two models with
+#     every paired difference 0 "score the same", test points near
+#     training points make the scores "likely optimistic"; and the
+#     distance-only null's nested chains start from the null's own score
+#     on their first extent, as the models' do, instead of the first
+#     ring's AUC of the outer extent's test points: the demo's hull and
+#     points chains of the null gain a step of test points, so their
+#     start_auc, change, steps, largest and slope moved (points from
+#     0.588 to 0.661); scores.csv and every score are unchanged);
+#   - rewritten again on branch h13 (an undetermined verdict's sentence
+#     adds on how many extents its interval straddles the tolerance: the
+#     demo's Boyce index of good, "on 7 of 12 extents"; sentence only);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
