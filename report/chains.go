@@ -177,7 +177,13 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 	if isNull(a.r, model) {
 		who = "null"
 	}
-	cs.Sentence = chainSentence(&cs, who)
+	fewest := -1
+	for _, id := range cs.Members {
+		if sc := a.chainScore(model, id); sc != nil && (fewest < 0 || sc.TestPoints < fewest) {
+			fewest = sc.TestPoints
+		}
+	}
+	cs.Sentence = chainSentence(&cs, who) + fewPointsClause(fewest)
 	return cs, warns
 }
 
@@ -238,6 +244,17 @@ func chainSentence(cs *ChainSummary, who string) string {
 		return s + "." + tail
 	}
 	return s + ", " + ringClause(st) + tail
+}
+
+// fewPointsClause warns that a chain's shares rest on few test points when
+// its fewest-pointed scored member has fewer than MinPairedPoints (our
+// cut-off for judging a paired difference): a large share there is one or
+// two points moving, which the chain describes but nothing tests.
+func fewPointsClause(fewest int) string {
+	if fewest < 0 || fewest >= MinPairedPoints {
+		return ""
+	}
+	return fmt.Sprintf(" These AUCs rest on as few as %d test points, fewer than the %d we judge a difference on (our cut-off): the shares describe them and are not judged.", fewest, MinPairedPoints)
 }
 
 // ringClause says what a ring's AUC means, following its value: whether

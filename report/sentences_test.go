@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -1438,4 +1439,35 @@ func TestPageReferenceExtent(t *testing.T) {
 func TestMetricsCaptionOmissionUncertain(t *testing.T) {
 	checkWords(t, "caption", metricsCaption(analyzedSample(t)), []string{"The predicted area has no sampling error",
 		"the omission rate does vary with the test records"}, []string{"have no bar: the threshold comes from the training records alone"})
+}
+
+// TestChainFewTestPoints: a chain whose member has fewer test points than
+// our 10-point cut-off says so, since its shares can be one or two points
+// moving; a chain on enough points does not.
+func TestChainFewTestPoints(t *testing.T) {
+	const clause = "rest on as few as"
+	r := loadSample(t)
+	s := analyzed(t, r)
+	for _, cs := range s.Chains {
+		if strings.Contains(cs.Sentence, clause) {
+			t.Fatalf("chain %s of %s on the sample says %q", cs.Chain, cs.Model, clause)
+		}
+	}
+	for i := range r.Scores {
+		if r.Scores[i].Model == "good" && r.Scores[i].Extent == "base" {
+			r.Scores[i].TestPoints = 7
+		}
+	}
+	s = analyzed(t, r)
+	found := false
+	for _, cs := range s.Chains {
+		if cs.Model != "good" || !slices.Contains(cs.Members, "base") {
+			continue
+		}
+		found = true
+		checkWords(t, "chain "+cs.Chain, cs.Sentence, []string{"These AUCs rest on as few as 7 test points, fewer than the 10 we judge a difference on (our cut-off)"}, nil)
+	}
+	if !found {
+		t.Fatal("no chain of good through base")
+	}
 }
