@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // findSpread returns the spread of metric key for model, or nil.
@@ -207,6 +209,11 @@ func headline(a *analysis, s *Sensitivity) string {
 		}
 		b.WriteString(strings.Join(parts, "; "))
 		fmt.Fprintf(&b, ", against %s.", against)
+		if s.BaseExtent != vocab.BaseID {
+			// The verdicts' differences are taken from another extent:
+			// say so here, where a reader may stop.
+			fmt.Fprintf(&b, " Differences are taken from %s.", referenceText(s, "%s"))
+		}
 		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
 			key := MetricKeyPartialROC(a.r.Settings.E[0])
 			var mvs []ModelVerdict

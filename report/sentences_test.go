@@ -1391,6 +1391,10 @@ func TestReferenceExtentInPlaceOfBase(t *testing.T) {
 		"its difference from the reference extent " + ref + ", in place of the base extent base (left out: ",
 		"we compared every extent with the reference extent on the test records both hold",
 		"On the reference extent the AUC of good"}, notWant)
+	checkWords(t, "headline", s.Headline, []string{"Differences are taken from the reference extent " + ref + ", in place of the base extent base (left out: "}, nil)
+	if r0 := analyzed(t, withNull(t)); strings.Contains(r0.Headline, "Differences are taken from") {
+		t.Errorf("headline with the base extent scored names a reference extent: %s", r0.Headline)
+	}
 }
 
 // TestNoCommonPointsIsNotUndefined: an extent that shares no test point
