@@ -310,9 +310,34 @@ func missingInput(o *pipeline.Options) (string, error) {
 
 // canonicalSettings encodes the settings that change a study's numbers or
 // files: everything but the output folder, --force, --quiet, the worker
-// count (results do not depend on it) and the recorded version.
+// count (results do not depend on it) and the recorded version. Input
+// paths are made absolute: the table's relative paths are joined to the
+// table's folder as the user named it, so the same table read from
+// another working directory (or by a scheduler task, which names it by
+// its absolute path) must give the same checksum.
 func canonicalSettings(o pipeline.Options) []byte {
 	o.Out, o.Force, o.Quiet, o.Workers, o.Version, o.StudyFile = "", false, false, 0, "", ""
+	abs := func(p string) string {
+		if p == "" {
+			return p
+		}
+		if a, err := filepath.Abs(p); err == nil {
+			return a
+		}
+		return p
+	}
+	named := func(items []string) []string {
+		out := make([]string, len(items))
+		for i, it := range items {
+			out[i] = it
+			if name, path, err := inputs.ParseNamedPath(it); err == nil {
+				out[i] = name + "=" + abs(path)
+			}
+		}
+		return out
+	}
+	o.Occurrences, o.Region, o.Ecoregions = abs(o.Occurrences), abs(o.Region), abs(o.Ecoregions)
+	o.Models, o.Nulls, o.Extra = named(o.Models), named(o.Nulls), named(o.Extra)
 	data, err := json.Marshal(o)
 	if err != nil {
 		panic("batch: settings cannot be encoded: " + err.Error()) // plain fields only: a programmer's error
