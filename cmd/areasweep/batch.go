@@ -126,7 +126,7 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
 	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
-	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished (replacing areasweep's files in their folders)")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
@@ -401,16 +401,38 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 		fmt.Fprintf(o.IO.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
 	}
 	if failed > 0 {
-		var ids []string
-		for i, err := range errs {
-			if err != nil {
-				ids = append(ids, studies[i].id)
-			}
-		}
-		return fmt.Errorf("%d of %d studies failed: %s; %s lists each with its error, and running the same command again retries them",
-			failed, len(studies), strings.Join(ids, ", "), filepath.Join(o.Out, report.SummaryHTML))
+		return failedStudies(o, studies, errs, failed)
 	}
 	return nil
+}
+
+// maxFailuresShown is how many failed studies' errors the batch's final
+// message lists.
+const maxFailuresShown = 20
+
+// failedStudies is the batch's final error: the failed studies' ids, then
+// each with its error, one per line (--quiet drops the progress lines,
+// and with --only, as in a scheduler task's log, no summary lists them).
+func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
+	var ids, lines []string
+	for i, err := range errs {
+		if err == nil {
+			continue
+		}
+		ids = append(ids, studies[i].id)
+		if len(lines) < maxFailuresShown {
+			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(err.Error()))
+		}
+	}
+	if len(ids) > maxFailuresShown {
+		lines = append(lines, fmt.Sprintf("\n  ... and %d more", len(ids)-maxFailuresShown))
+	}
+	where := ""
+	if len(o.Only) == 0 {
+		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
+	}
+	return fmt.Errorf("%d of %d studies failed: %s; %srunning the same command again retries them:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, strings.Join(lines, ""))
 }
 
 // failurePath is where a study's last error is kept, so that a summary
@@ -511,7 +533,10 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		case s == stateStale && !o.Force:
 			errs[i] = fmt.Errorf("%s was made from other settings (the table row changed since it finished); add --force to run it again, or remove the folder", st.dir)
 			continue
-		case s == stateStale:
+		case s == stateStale || o.Force:
+			// --force also lets a study run into a folder left without
+			// a marker (the user's, or one given areasweep's files by
+			// hand): run --force replaces areasweep's files only.
 			st.opts.Force = true
 		}
 		if st.opts.Workers == 0 {

@@ -3,6 +3,7 @@ package main
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"areasweep/cmd/internal/batch"
@@ -45,5 +46,38 @@ func TestBatchSettingsHashIgnoresHowTableIsNamed(t *testing.T) {
 	byAbs[1].opts.Occurrences = s.far
 	if h := batch.SettingsHash(canonicalSettings(byAbs[1].opts.Options)); h == byRel[1].settings {
 		t.Error("another occurrence file gave the same settings checksum")
+	}
+}
+
+// TestBatchForceIntoFolderWithoutMarker: a study folder that exists
+// without a completion marker (here holding a file of the user's) is
+// refused without --force, with advice that works: the batch's --force
+// then runs the study into it and keeps the user's file.
+func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(t.TempDir(), "runs")
+	mine := filepath.Join(out, "beta", "notes.txt")
+	for _, d := range []string{filepath.Join(out, batchMarker), filepath.Dir(mine)} {
+		if err := os.MkdirAll(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := os.WriteFile(mine, []byte("mine"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code := runBin(t, "batch", table, "--out", out, "--only", "beta", "--quiet")
+	if code != 1 || !strings.Contains(se, "--force") {
+		t.Fatalf("without --force: exit %d, want 1 with advice to add --force: %s", code, se)
+	}
+	_, se, code = runBin(t, "batch", table, "--out", out, "--only", "beta", "--quiet", "--force")
+	if code != 0 {
+		t.Fatalf("with --force: exit %d, want 0: %s", code, se)
+	}
+	if b, err := os.ReadFile(mine); err != nil || string(b) != "mine" {
+		t.Errorf("the user's file: %q, %v; want it kept", b, err)
+	}
+	if _, err := os.Stat(filepath.Join(out, "beta", "results.json")); err != nil {
+		t.Errorf("no results after batch --force: %v", err)
 	}
 }
