@@ -381,6 +381,8 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	if o.Slurm.Enabled {
 		return batchSlurm(ctx, o, studies)
 	}
+	note := "the running studies' partial results were removed; the studies that had finished keep their folders, and running the same command again runs the others"
+	defer stoppedNote.Store(stoppedNote.Swap(&note))
 	p := &progress{o: o, total: len(studies)}
 	errs := runStudies(ctx, o, studies, p)
 	if !o.SummaryOnly || o.Shards > 1 {

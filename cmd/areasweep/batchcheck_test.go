@@ -1,10 +1,14 @@
 package main
 
 import (
+	"bytes"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"areasweep/cmd/internal/batch"
 )
@@ -79,5 +83,63 @@ func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(out, "beta", "results.json")); err != nil {
 		t.Errorf("no results after batch --force: %v", err)
+	}
+}
+
+// TestBatchStoppedBySignal stops a batch while its second study scores:
+// exit 128+N, the message says that finished studies stay, the first
+// study's folder is complete, the stopped one left nothing, and the same
+// command run again (its slow row made quick) skips the first and runs
+// the second.
+func TestBatchStoppedBySignal(t *testing.T) {
+	s := sharedStudy(t)
+	dir := t.TempDir()
+	table := filepath.Join(dir, "studies.csv")
+	write := func(iterations string) {
+		body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n" +
+			"id,model,occurrences,region,iterations\n" +
+			"quick,m=" + s.model + "," + s.occ + "," + s.region + ",30\n" +
+			"slow,m=" + s.model + "," + s.occ + "," + s.region + "," + iterations + "\n"
+		if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	write("1000000")
+	out := filepath.Join(dir, "runs")
+	for _, sig := range []syscall.Signal{syscall.SIGINT, syscall.SIGTERM} {
+		cmd := exec.Command(areasweepBin, "batch", table, "--out", out, "--quiet")
+		var se bytes.Buffer
+		cmd.Stderr = &se
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		waitForStage(t, filepath.Join(out, "slow"))
+		time.Sleep(100 * time.Millisecond)
+		cmd.Process.Signal(sig)
+		err := cmd.Wait()
+		code := -1
+		if ee, ok := err.(*exec.ExitError); ok {
+			code = ee.ExitCode()
+		}
+		if code != 128+int(sig) {
+			t.Errorf("%v: exit %d, want %d; stderr %s", sig, code, 128+int(sig), se.String())
+		}
+		if msg := se.String(); !strings.Contains(msg, "studies that had finished keep their folders") || strings.Contains(msg, "--out was left as it was") || forbidden.MatchString(msg) {
+			t.Errorf("%v: stderr: %s", sig, msg)
+		}
+		if _, err := os.Stat(filepath.Join(out, "quick", ".areasweep-done")); err != nil {
+			t.Errorf("%v: the finished study lost its marker: %v", sig, err)
+		}
+		if _, err := os.Stat(filepath.Join(out, "slow")); !os.IsNotExist(err) {
+			t.Errorf("%v: the stopped study left its folder (%v)", sig, err)
+		}
+		if l := leftovers(out); len(l) > 0 {
+			t.Errorf("%v: left behind: %v", sig, l)
+		}
+	}
+	write("30")
+	_, se, code := runBin(t, "batch", table, "--out", out)
+	if code != 0 || !strings.Contains(se, "quick: already finished, skipped") {
+		t.Fatalf("rerun: exit %d: %s", code, se)
 	}
 }
