@@ -340,6 +340,19 @@ func TestMergeRelativePaths(t *testing.T) {
 	if se, code := run(s.dir, "merge", "--quiet", "--out", out, "shards/1", "shards/2"); code != 0 {
 		t.Fatalf("merge from the shards' folder: exit %d: %s", code, se)
 	}
+	// From the right folder, with one input renamed since the shards ran:
+	// the message names that input as missing, not the folder as wrong.
+	if err := os.Rename(filepath.Join(s.dir, "model.tif"), filepath.Join(s.dir, "model-old.tif")); err != nil {
+		t.Fatal(err)
+	}
+	out2 := filepath.Join(elsewhere, "merged2")
+	se, code = run(s.dir, "merge", "--quiet", "--out", out2, "shards/1", "shards/2")
+	if code != 2 || !strings.Contains(se, "model.tif is missing from "+s.dir) || !strings.Contains(se, "removed or renamed") || strings.Contains(se, "run the merge from that folder") {
+		t.Fatalf("merge with an input renamed: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out2); err == nil {
+		t.Error("the refused merge created --out")
+	}
 }
 
 // TestMergeRefusesChangedSidecars: a file read with an input (here the

@@ -72,15 +72,28 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	rec.apply(&o)
 	// The shards record the input paths as they were given: a relative
 	// one is relative to the folder shard 1 ran in.
+	// When some relative input is found and another is not, the merge
+	// runs in the right folder and that input was removed or renamed.
+	var missing []string
+	found := false
 	for _, p := range o.InputPaths() {
 		if p == "" || filepath.IsAbs(p) {
 			continue
 		}
 		if _, err := os.Stat(p); err != nil {
-			here, _ := os.Getwd()
-			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
-				"run the merge from that folder, or run the shards again with absolute paths", first.Source, p, here))
+			missing = append(missing, p)
+		} else {
+			found = true
 		}
+	}
+	if len(missing) > 0 {
+		here, _ := os.Getwd()
+		if found {
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s is missing from %s, where the shards' other inputs are: it was removed or renamed since the shards ran; "+
+				"restore it, or run the shards again", first.Source, missing[0], here))
+		}
+		return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
+			"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0], here))
 	}
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
