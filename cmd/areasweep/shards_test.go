@@ -157,6 +157,7 @@ func TestMergeRefuses(t *testing.T) {
 	s := newSmallStudy(t)
 	two := runShards(t, s, filepath.Join(s.dir, "two"), 2)
 	otherSeed := runShards(t, s, filepath.Join(s.dir, "seed"), 2, "--seed", "10")
+	otherSettings := runShards(t, s, filepath.Join(s.dir, "settings"), 2, "--iterations", "60", "--tolerance-auc", "0.03")
 	// Shard 2 of a run whose occurrences differ by one line.
 	occ2 := filepath.Join(s.dir, "occ2.csv")
 	b, _ := os.ReadFile(s.occ)
@@ -183,6 +184,7 @@ func TestMergeRefuses(t *testing.T) {
 		want  []string
 	}{
 		{"mixed seeds", []string{two[0], otherSeed[1]}, []string{"seed (9 vs 10)", file(two[0], 1, 2), file(otherSeed[1], 2, 2)}},
+		{"other settings", []string{two[0], otherSettings[1]}, []string{"differ in settings (iterations 50 vs 60, tolerance-auc 0.02 vs 0.03)", file(otherSettings[1], 2, 2)}},
 		{"changed input", []string{two[0], otherInput[1]}, []string{"occurrences", "checksum", file(otherInput[1], 2, 2)}},
 		{"missing shard", []string{two[1]}, []string{"shard(s) 1 of 2 not given", file(two[1], 2, 2)}},
 		{"duplicate shard", []string{two[0], two[1], dup}, []string{"both shard 1", "copy.aspf"}},

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -179,6 +180,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if errors.Is(err, metrics.ErrShardMissing) {
 			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
 		}
+		nameSettings(err, files, headers)
 		return nil, metrics.ShardHeader{}, fault.BadInput(err)
 	}
 	if h := headers[0]; h.Tool != version {
@@ -206,6 +208,42 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// nameSettings adds to CheckShardSet's "differ in settings" which
+// settings differ, read from the two files' recorded runs: the first
+// header and the first that differs from it (the pair CheckShardSet
+// names), when that one differs in settings alone.
+func nameSettings(err error, files []string, headers []metrics.ShardHeader) {
+	var se *metrics.ShardError
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) {
+		return
+	}
+	ref := headers[0]
+	for i := 1; i < len(headers); i++ {
+		h := headers[i]
+		if h.Tool == ref.Tool && slices.Equal(h.Inputs, ref.Inputs) && h.Settings == ref.Settings {
+			continue
+		}
+		if h.Tool != ref.Tool || !slices.Equal(h.Inputs, ref.Inputs) {
+			return
+		}
+		run := func(f string) []byte {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				return nil
+			}
+			sh, err := shardfile.Decode(data, f)
+			if err != nil {
+				return nil
+			}
+			return sh.Run
+		}
+		if d := settingsDiff(run(files[0]), run(files[i])); d != "" {
+			se.Detail = strings.Replace(se.Detail, "differ in settings", "differ in settings ("+d+")", 1)
+		}
+		return
+	}
 }
 
 // useShards makes every pass of s take its sums from merged instead of
