@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -141,5 +142,62 @@ func TestBatchStoppedBySignal(t *testing.T) {
 	_, se, code := runBin(t, "batch", table, "--out", out)
 	if code != 0 || !strings.Contains(se, "quick: already finished, skipped") {
 		t.Fatalf("rerun: exit %d: %s", code, se)
+	}
+}
+
+// TestSlurmPendingStale: a study finished from another row (here another
+// seed) is not submitted again without --force and is named; with
+// --force its marker is removed (else the array script would skip the
+// task as finished) and its task submitted. Finished studies whose row
+// did not change stay finished.
+func TestSlurmPendingStale(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(t.TempDir(), "runs")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--only", "alpha,beta", "--quiet"); code != 0 {
+		t.Fatalf("batch: exit %d: %s", code, se)
+	}
+	body, err := os.ReadFile(table)
+	if err != nil {
+		t.Fatal(err)
+	}
+	changed := strings.Replace(string(body), "occ.csv,region.geojson,11", "occ.csv,region.geojson,12", 1)
+	if changed == string(body) {
+		t.Fatal("the test table has no row with seed 11")
+	}
+	table2 := filepath.Join(filepath.Dir(table), "studies-seed12.csv")
+	if err := os.WriteFile(table2, []byte(changed), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, force := range []bool{false, true} {
+		o := &BatchOptions{Table: table2, Out: out, Shards: 1, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}}
+		studies, err := resolveBatch(o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := slurmPlan(o, studies)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pending, stale, err := slurmPending(o, p, studies)
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Tasks: 1 alpha (finished, same row), 2 beta (finished, row
+		// changed), 3 broken (never finished).
+		wantPending, wantStale := []int{3}, []string{"beta"}
+		if force {
+			wantPending, wantStale = []int{2, 3}, nil
+		}
+		if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(stale) != fmt.Sprint(wantStale) {
+			t.Errorf("force %v: pending %v, stale %v; want %v, %v", force, pending, stale, wantPending, wantStale)
+		}
+		_, err = os.Stat(filepath.Join(out, "beta", ".areasweep-done"))
+		if force == (err == nil) {
+			t.Errorf("force %v: beta's marker: %v", force, err)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(out, "alpha", ".areasweep-done")); err != nil {
+		t.Errorf("alpha's marker: %v", err)
 	}
 }
