@@ -375,6 +375,9 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	if err != nil {
 		return fault.BadInput(err)
 	}
+	if err := o.Slurm.clientsPresent(); err != nil {
+		return fault.BadInput(err)
+	}
 	if err := claimBatchDir(o.Out); err != nil {
 		return err
 	}

@@ -201,3 +201,25 @@ func TestSlurmPendingStale(t *testing.T) {
 		t.Errorf("alpha's marker: %v", err)
 	}
 }
+
+// TestSlurmSubmitWithoutSbatch: --submit on a machine without sbatch is
+// refused before anything is written (exit 2), saying what to do; --slurm
+// alone still writes the job files and prints the commands.
+func TestSlurmSubmitWithoutSbatch(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	bin := t.TempDir() // a PATH without sbatch
+	env := []string{"PATH=" + bin, "HOME=" + t.TempDir()}
+	out := filepath.Join(t.TempDir(), "runs")
+	_, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit")
+	if code != 2 || !strings.Contains(se, "sbatch is not on PATH") || !strings.Contains(se, "without --submit") || strings.Contains(se, "exec:") {
+		t.Fatalf("exit %d, want 2 with advice: %s", code, se)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("the refused submission wrote %s (%v)", out, err)
+	}
+	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm")
+	if code != 0 || !strings.Contains(so, "sbatch --parsable --array=1-3") {
+		t.Fatalf("--slurm alone: exit %d\n%s\n%s", code, so, se)
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -52,6 +53,26 @@ func (o *SlurmOptions) validate() error {
 		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, settings.MaxWorkers)
 	case o.MaxParallel < 0:
 		return fmt.Errorf("--max-parallel is %d; give 0 (no limit) or more", o.MaxParallel)
+	}
+	return nil
+}
+
+// clientsPresent checks, before anything is written, that the SLURM
+// commands --submit (sbatch) and --wait (squeue) run are on PATH.
+func (o *SlurmOptions) clientsPresent() error {
+	var need [][2]string
+	if o.Submit {
+		need = append(need, [2]string{"--submit", "sbatch"})
+	}
+	if o.Wait {
+		need = append(need, [2]string{"--wait", "squeue"})
+	}
+	for _, n := range need {
+		flag, c := n[0], n[1]
+		if _, err := exec.LookPath(c); err != nil {
+			return fmt.Errorf("%s: %s is not on PATH, so this machine cannot submit SLURM jobs (on a cluster, run this on a login node, after loading SLURM's module if the site uses modules); "+
+				"without --submit, --slurm writes the job files and prints the sbatch commands to run where SLURM is", flag, c)
+		}
 	}
 	return nil
 }

@@ -447,7 +447,11 @@ func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
-		return "", fmt.Errorf("%w: sbatch %s: %w: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+		msg := strings.TrimSpace(stderr.String())
+		if msg == "" {
+			msg = err.Error()
+		}
+		return "", fmt.Errorf("%w: sbatch %s: %s", ErrSubmit, strings.Join(args, " "), msg)
 	}
 	// --parsable prints "JID" or "JID;CLUSTER".
 	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")
