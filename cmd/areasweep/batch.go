@@ -189,15 +189,17 @@ type batchStudy struct {
 // resolveBatch reads the table and resolves every row into run options,
 // collecting every problem, by line and column, before anything runs.
 func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
+	// A table with problems still gives its good rows, checked below
+	// too, so that every problem is listed in one round.
 	b, err := inputs.LoadBatch(o.Table)
-	if err != nil {
+	var errs inputs.BatchErrors
+	if err != nil && (b == nil || !errors.As(err, &errs)) {
 		return nil, err
 	}
 	out, err := filepath.Abs(o.Out)
 	if err != nil {
 		return nil, fmt.Errorf("--out %s: %w", o.Out, err)
 	}
-	var errs inputs.BatchErrors
 	reserved := map[string]bool{}
 	for _, n := range append(report.SummaryNames(), batchMarker) {
 		reserved[strings.ToLower(n)] = true
@@ -227,6 +229,7 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 		studies = append(studies, st)
 	}
 	if len(errs) > 0 {
+		inputs.SortBatchErrors(errs)
 		return nil, errs
 	}
 	if len(o.Only) > 0 {

@@ -223,3 +223,31 @@ func TestSlurmSubmitWithoutSbatch(t *testing.T) {
 		t.Fatalf("--slurm alone: exit %d\n%s\n%s", code, so, se)
 	}
 }
+
+// TestBatchListsEveryProblemInOneRound: a table with a bad id and a row
+// whose input file does not exist lists both, in line order, in one run
+// (the rows without a table problem are checked too), exit 2, nothing
+// created.
+func TestBatchListsEveryProblemInOneRound(t *testing.T) {
+	s := sharedStudy(t)
+	table := filepath.Join(t.TempDir(), "studies.csv")
+	body := "# iterations: 30\nid,model,occurrences,region\n" +
+		"gone,m=" + filepath.Join(s.dir, "nope.tif") + "," + s.occ + "," + s.region + "\n" +
+		"Quercus robur,m=" + s.model + "," + s.occ + "," + s.region + "\n" +
+		"summary.csv,m=" + s.model + "," + s.occ + "," + s.region + "\n"
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "runs")
+	_, se, code := runBin(t, "batch", table, "--out", out)
+	if code != 2 || !strings.Contains(se, "3 problem(s)") {
+		t.Fatalf("exit %d, want 2 with 3 problems: %s", code, se)
+	}
+	i3, i4, i5 := strings.Index(se, "line 3,"), strings.Index(se, "line 4,"), strings.Index(se, "line 5,")
+	if i3 < 0 || i4 < i3 || i5 < i4 || !strings.Contains(se, "nope.tif does not exist") || !strings.Contains(se, `for example "Quercus_robur"`) {
+		t.Errorf("problems not all listed in line order: %s", se)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("%s was created (%v)", out, err)
+	}
+}
