@@ -138,7 +138,7 @@ var batchIDRE = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$`)
 var requiredKeys = []string{"model", "occurrences", "region"}
 
 // LoadBatch reads the study table at path (YAML for .yaml/.yml, else CSV)
-// and resolves relative paths against its folder. Lines may end in a line
+// and resolves relative paths against its folder, made absolute. Lines may end in a line
 // feed, a carriage return and line feed, or a carriage return alone
 // (Excel's "CSV (Macintosh)"; crLines, as for the occurrence table). Every
 // problem is reported, as BatchErrors in line order, before anything
@@ -161,8 +161,16 @@ func LoadBatch(path string) (*Batch, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
+	// The folder is made absolute, so that a study's recorded input paths
+	// (results.json) do not depend on how the table was named: a local
+	// batch and a scheduler task (which names the table absolutely) write
+	// the same bytes.
+	dir := filepath.Dir(path)
+	if abs, err := filepath.Abs(dir); err == nil {
+		dir = abs
+	}
 	ext := strings.ToLower(filepath.Ext(path))
-	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
+	return ParseBatch(data, path, dir, ext == ".yaml" || ext == ".yml")
 }
 
 // ParseBatch reads a study table from data; name is used in messages,

@@ -330,3 +330,36 @@ func TestBatchIDSuggestion(t *testing.T) {
 		t.Errorf("got %v", err)
 	}
 }
+
+// TestLoadBatchAbsolutePaths: a table named by a relative path resolves
+// its rows' relative paths to absolute ones, so that the studies' recorded
+// inputs do not depend on the working directory or on how the table was
+// named.
+func TestLoadBatchAbsolutePaths(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "studies.csv")
+	if err := os.WriteFile(path, []byte("id,model,occurrences,region\noak,m=oak/m.tif,oak/p.csv,/abs/r.gpkg\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	wd, err := os.Getwd()
+	if err != nil {
+		t.Fatal(err)
+	}
+	rel, err := filepath.Rel(wd, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{path, rel} {
+		b, err := LoadBatch(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		st := *b.Studies[0].Study
+		if st["occurrences"] != filepath.Join(dir, "oak", "p.csv") || st["region"] != "/abs/r.gpkg" {
+			t.Errorf("table named %s: occurrences %v, region %v", name, st["occurrences"], st["region"])
+		}
+		if m, _ := st["model"].([]string); len(m) != 1 || m[0] != "m="+filepath.Join(dir, "oak", "m.tif") {
+			t.Errorf("table named %s: model %v", name, st["model"])
+		}
+	}
+}
