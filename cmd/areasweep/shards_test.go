@@ -176,6 +176,8 @@ func TestMergeRefuses(t *testing.T) {
 	os.WriteFile(corrupt, c, 0o644)
 	cut := filepath.Join(s.dir, "cut.aspf")
 	os.WriteFile(cut, data[:len(data)/3], 0o644)
+	empty := filepath.Join(s.dir, "empty.aspf")
+	os.WriteFile(empty, nil, 0o644)
 	notShard := filepath.Join(s.dir, "results.aspf")
 	os.WriteFile(notShard, []byte(`{"schema_version": 1}`), 0o644)
 	cases := []struct {
@@ -191,6 +193,7 @@ func TestMergeRefuses(t *testing.T) {
 		{"corrupt file", []string{corrupt, two[1]}, []string{corrupt, "checksum mismatch"}},
 		{"cut short", []string{two[0], cut}, []string{cut}},
 		{"not a partial file", []string{notShard}, []string{notShard, "ASPF"}},
+		{"empty file", []string{two[0], empty}, []string{empty, "is empty (0 bytes)", "run that shard again"}},
 		{"empty folder", []string{t.TempDir()}, []string{"holds no partial file"}},
 	}
 	for _, tc := range cases {
