@@ -150,8 +150,13 @@ func LoadBatch(path string) (*Batch, error) {
 		return nil, err
 	}
 	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return nil, fmt.Errorf("inputs: study table %s does not exist; check the path (areasweep batch --template prints an example table)", path)
+	case errors.Is(err, os.ErrPermission):
+		return nil, fmt.Errorf("inputs: study table %s cannot be read (permission denied); check its permissions", path)
+	case err != nil:
+		return nil, fmt.Errorf("inputs: cannot read study table %s: %w", path, err)
 	}
 	defer f.Close()
 	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
@@ -179,6 +184,10 @@ func LoadBatch(path string) (*Batch, error) {
 func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, error) {
 	if name == "" {
 		name = "study table"
+	}
+	if head := data[:min(len(data), 512)]; bytes.IndexByte(head, 0) >= 0 && !bytes.HasPrefix(head, []byte{0xFF, 0xFE}) && !bytes.HasPrefix(head, []byte{0xFE, 0xFF}) {
+		return nil, BatchErrors{{File: name, Err: fmt.Errorf("%w: this is a binary file%s, not a study table; give the CSV or YAML table of the studies (areasweep batch --template prints an example)",
+			ErrBatchSyntax, binaryKind(head))}}
 	}
 	data, _ = io.ReadAll(crLines(bytes.NewReader(data))) // from memory: cannot fail
 	// After crLines, so that the line counts carriage-return-only lines.

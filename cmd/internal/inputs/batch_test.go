@@ -363,3 +363,21 @@ func TestLoadBatchAbsolutePaths(t *testing.T) {
 		}
 	}
 }
+
+// TestLoadBatchWrongFile: a missing table and a binary file given as the
+// table are named with what to do, not with Go's or a decoder's words.
+func TestLoadBatchWrongFile(t *testing.T) {
+	dir := t.TempDir()
+	_, err := LoadBatch(filepath.Join(dir, "nope.csv"))
+	if err == nil || !strings.Contains(err.Error(), "nope.csv does not exist; check the path") || strings.Contains(err.Error(), "no such file") {
+		t.Errorf("missing table: %v", err)
+	}
+	tif := filepath.Join(dir, "model.tif")
+	if err := os.WriteFile(tif, []byte("II*\x00\x08\x00\x00\x00\xfa\x01"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err = LoadBatch(tif)
+	if !errors.Is(err, ErrBatchSyntax) || !strings.Contains(err.Error(), "binary file (a TIFF image, such as a GeoTIFF raster), not a study table") || strings.Contains(err.Error(), "Latin-1") {
+		t.Errorf("GeoTIFF as the table: %v", err)
+	}
+}
