@@ -391,6 +391,18 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	defer stoppedNote.Store(stoppedNote.Swap(&note))
 	p := &progress{o: o, total: len(studies)}
 	errs := runStudies(ctx, o, studies, p)
+	// Another batch on the same --out (or a scheduler task) may have
+	// finished a study that failed here (its folder was in use, or already
+	// held its outputs): the summary and the exit status go by the
+	// folders as they are now.
+	for i, st := range studies {
+		if errs[i] != nil {
+			if s, _ := st.state(); s == stateDone {
+				p.line(st.id, "finished by another run meanwhile")
+				errs[i] = nil
+			}
+		}
+	}
 	if !o.SummaryOnly || o.Shards > 1 {
 		for i, st := range studies {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])

@@ -255,3 +255,44 @@ func TestBatchListsEveryProblemInOneRound(t *testing.T) {
 		t.Errorf("%s was created (%v)", out, err)
 	}
 }
+
+// TestTwoBatchesOnOneFolder: a second batch started on the same --out
+// while the first scores its slow study finds that study's folder in use
+// (failed, for now) and runs the quick one; the first then finds the
+// quick one finished by the other. The batch that ends last reports every
+// study as finished, exit 0, and its summary lists no failure.
+func TestTwoBatchesOnOneFolder(t *testing.T) {
+	s := sharedStudy(t)
+	dir := t.TempDir()
+	table := filepath.Join(dir, "studies.csv")
+	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n" +
+		"id,model,occurrences,region,iterations\n" +
+		"slow,m=" + s.model + "," + s.occ + "," + s.region + ",60000\n" +
+		"quick,m=" + s.model + "," + s.occ + "," + s.region + ",30\n"
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "runs")
+	first := exec.Command(areasweepBin, "batch", table, "--out", out)
+	var se1 bytes.Buffer
+	first.Stderr = &se1
+	if err := first.Start(); err != nil {
+		t.Fatal(err)
+	}
+	waitForStage(t, filepath.Join(out, "slow"))
+	t0 := time.Now()
+	_, se2, code2 := runBin(t, "batch", table, "--out", out)
+	if code2 != 1 || !strings.Contains(se2, "slow: --out") || !strings.Contains(se2, "is in use") {
+		t.Errorf("second batch: exit %d, want 1 with slow's folder in use: %s", code2, se2)
+	}
+	err := first.Wait()
+	t.Logf("first batch ended %v after the second", time.Since(t0))
+	if err != nil || !strings.Contains(se1.String(), "quick: finished by another run meanwhile") {
+		t.Fatalf("first batch: %v: %s", err, se1.String())
+	}
+	for _, row := range readSummary(t, out) {
+		if row["status"] != "ok" {
+			t.Errorf("summary row %v", row)
+		}
+	}
+}
