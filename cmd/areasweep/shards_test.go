@@ -306,6 +306,20 @@ func TestShardsShareAFolder(t *testing.T) {
 	if _, se, code := runBin(t, "merge", "--quiet", "--out", filepath.Join(s.dir, "merged"), dir); code != 0 {
 		t.Fatalf("merge of the folder: exit %d: %s", code, se)
 	}
+	// Another split run into the same folder: the merge of the folder is
+	// refused saying it holds several splits and which files to give.
+	_, se, code := runBin(t, s.shardArgs(t, dir, "--shard", "1/3", "--force")...)
+	if code != 0 {
+		t.Fatalf("shard 1/3: exit %d: %s", code, se)
+	}
+	out := filepath.Join(s.dir, "merged-mixed")
+	_, se, code = runBin(t, "merge", "--quiet", "--out", out, dir)
+	if code != 2 || !strings.Contains(se, dir+" holds the partial files of several splits") || !strings.Contains(se, "shard-*-of-") {
+		t.Fatalf("merge of a folder with two splits: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the refused merge created --out")
+	}
 }
 
 // TestMergeRelativePaths: shards run with paths relative to their folder

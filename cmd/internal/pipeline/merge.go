@@ -181,6 +181,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
 		}
 		nameSettings(err, files, headers)
+		mixedSplits(err, files, headers)
 		return nil, metrics.ShardHeader{}, fault.BadInput(err)
 	}
 	if h := headers[0]; h.Tool != version {
@@ -243,6 +244,31 @@ func nameSettings(err error, files []string, headers []metrics.ShardHeader) {
 			se.Detail = strings.Replace(se.Detail, "differ in settings", "differ in settings ("+d+")", 1)
 		}
 		return
+	}
+}
+
+// mixedSplits adds to a refusal of shards of different counts that one
+// folder holds partial files of several splits (shards run there with
+// --force and another N), and which files to give instead.
+func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
+	var se *metrics.ShardError
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) || !strings.Contains(se.Detail, "differ in shard count") {
+		return
+	}
+	counts := map[string]map[int]bool{}
+	for i, f := range files {
+		d := filepath.Dir(f)
+		if counts[d] == nil {
+			counts[d] = map[int]bool{}
+		}
+		counts[d][headers[i].Shards] = true
+	}
+	for _, f := range files {
+		d := filepath.Dir(f)
+		if len(counts[d]) > 1 {
+			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", d, headers[0].Shards)
+			return
+		}
 	}
 }
 
