@@ -265,6 +265,9 @@ func DecodePartial(data []byte, source string) (*PartialFile, error) {
 	bad := func(format string, a ...any) error {
 		return &ShardError{Source: source, Err: ErrPartialFormat, Detail: fmt.Sprintf(format, a...)}
 	}
+	if len(data) == 0 {
+		return nil, bad("is empty (0 bytes): its shard did not finish writing it; run that shard again")
+	}
 	if len(data) < 4 || string(data[:4]) != partialMagic {
 		return nil, bad("does not start with %q; give the partial files that `run --shard` wrote", partialMagic)
 	}

@@ -74,6 +74,11 @@ type BatchRow struct {
 	// AUCBase is AUC on the base extent.
 	AUCBase        float64
 	AUCBaseDefined bool
+	// TestPoints is the number of the model's test points scored on the
+	// base extent (Results.Scores); TestPointsKnown is false when the
+	// results hold no score of the model there.
+	TestPoints      int
+	TestPointsKnown bool
 	// AUCMin, AUCMax and AUCRange describe AUC across the scored extents
 	// (Sensitivity.Spreads).
 	AUCMin, AUCMax       float64
@@ -87,6 +92,9 @@ type BatchRow struct {
 	EffectExtent          string
 	Effect                float64
 	EffectLow, EffectHigh float64
+	// EffectPoints is the number of test points the extent effect rests
+	// on (those both extents hold).
+	EffectPoints int
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
 	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
 	Tolerance float64
@@ -257,6 +265,12 @@ func studyRow(r *Results, id, model string) BatchRow {
 			d := mv.Diffs[mv.Largest]
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
+			row.EffectPoints = d.CommonPoints
+		}
+	}
+	for _, sc := range r.Scores {
+		if sc.Model == model && sc.Extent == sens.BaseExtent {
+			row.TestPoints, row.TestPointsKnown = sc.TestPoints, true
 		}
 	}
 	if an := baseNullComparison(r, model); an != nil {
@@ -299,6 +313,20 @@ func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method = true, d.Extent, d.Diff, d.Low, d.High, d.Method
 	}
 	return v
+}
+
+// TestPoints is the number of test points study id scored on its base
+// extent: the largest over its models (they share the occurrence records;
+// a model with no data under some of them scores fewer). False when no
+// model's count is known.
+func (s *BatchSummary) TestPoints(id string) (int, bool) {
+	n, ok := 0, false
+	for _, r := range s.Rows {
+		if r.Study == id && r.TestPointsKnown {
+			n, ok = max(n, r.TestPoints), true
+		}
+	}
+	return n, ok
 }
 
 // Models lists the model names of the summary, in order of first

@@ -13,8 +13,8 @@ import (
 // Undefined numbers are empty cells.
 var summaryColumns = []string{
 	"study", "status", "model", "base_extent", "extents",
-	"auc_base", "auc_min", "auc_min_extent", "auc_max", "auc_max_extent", "auc_range",
-	"effect_extent", "auc_diff", "auc_diff_ci_low", "auc_diff_ci_high", "tolerance", "auc_verdict",
+	"auc_base", "test_points", "auc_min", "auc_min_extent", "auc_max", "auc_max_extent", "auc_range",
+	"effect_extent", "auc_diff", "auc_diff_ci_low", "auc_diff_ci_high", "auc_diff_points", "tolerance", "auc_verdict",
 	"null", "auc_minus_null", "auc_minus_null_ci_low", "auc_minus_null_ci_high", "null_reading",
 	"error",
 }
@@ -34,6 +34,14 @@ func num(v float64, ok bool) string {
 		return ""
 	}
 	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// count formats a count, or "" when it is unknown.
+func count(n int, ok bool) string {
+	if !ok {
+		return ""
+	}
+	return strconv.Itoa(n)
 }
 
 // WriteCSV writes summary.csv: one row per study and model, failed
@@ -65,9 +73,9 @@ func summaryRecord(r BatchRow) []string {
 	null := r.Null != ""
 	return []string{
 		r.Study, "ok", r.Model, r.BaseExtent, strconv.Itoa(r.Extents),
-		num(r.AUCBase, r.AUCBaseDefined), num(r.AUCMin, spread), r.MinExtent, num(r.AUCMax, spread), r.MaxExtent, num(r.AUCRange, spread),
+		num(r.AUCBase, r.AUCBaseDefined), count(r.TestPoints, r.TestPointsKnown), num(r.AUCMin, spread), r.MinExtent, num(r.AUCMax, spread), r.MaxExtent, num(r.AUCRange, spread),
 		r.EffectExtent, num(r.Effect, r.EffectDefined), num(r.EffectLow, r.EffectDefined), num(r.EffectHigh, r.EffectDefined),
-		num(r.Tolerance, true), string(r.Verdict),
+		count(r.EffectPoints, r.EffectDefined), num(r.Tolerance, true), string(r.Verdict),
 		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null],
 		"",
 	}

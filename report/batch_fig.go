@@ -51,7 +51,9 @@ func effectFigure(s *BatchSummary) (figure, bool) {
 		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s; a bar wholly outside it makes the model's AUC extent-sensitive in that study, "+
 			"unless it rests on fewer than %d common test points (not judged).", fmtG(s.Tolerances[0]), MinPairedPoints)
 	}
-	if !labels {
+	if labels {
+		f.Caption += " n: the study's test points on its base extent; an effect rests on those the other extent holds too (summary.csv, auc_diff_points)."
+	} else {
 		f.Caption += " There are too many studies to name each row; summary.csv lists them."
 	}
 	f.draw = func(c draw.Canvas) error {
@@ -161,7 +163,11 @@ func effectPlot(s *BatchSummary, order []string, labels bool, w vg.Length) (*plo
 	var ticks []plot.Tick
 	if labels {
 		for i, id := range order {
-			ticks = append(ticks, plot.Tick{Value: float64(i), Label: id})
+			label := id
+			if n, ok := s.TestPoints(id); ok {
+				label = fmt.Sprintf("%s (n = %d)", id, n)
+			}
+			ticks = append(ticks, plot.Tick{Value: float64(i), Label: label})
 		}
 	}
 	p.Y.Tick.Marker = plot.ConstantTicks(ticks)

@@ -49,6 +49,9 @@ func (s *BatchSummary) methodsSections() []textSection {
 		results = append(results, fmt.Sprintf("Counted by study and model (%d pairs), AUC was extent-sensitive for %d, robust for %d and undetermined for %d.",
 			c.Pairs, c.PairsSensitive, c.PairsRobust, c.PairsUndetermined))
 	}
+	if n := s.testPointsSentence(); n != "" {
+		results = append(results, n)
+	}
 	if e := s.effectSentence(); e != "" {
 		results = append(results, e)
 	}
@@ -134,13 +137,42 @@ func (s *BatchSummary) effectSentence() string {
 		med = (vals[len(vals)/2-1] + vals[len(vals)/2]) / 2
 	}
 	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent)
+		return fmt.Sprintf("%s (study %s, model %s, extent %s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, r.EffectPoints, plural(r.EffectPoints))
 	}
 	if len(defined) == 1 {
 		return "The extent effect was " + where(lo) + "."
 	}
 	return fmt.Sprintf("The extent effects ran from %s to %s, median %s over %d study-model pairs (a description of these studies, not an estimate for others).",
 		where(lo), where(hi), signed3(med), len(defined))
+}
+
+// testPointsSentence gives the span of the studies' test points on their
+// base extents, so that a reader weighs a study of 12 points against one
+// of 500: "The studies held 12 to 500 test points on their base extents
+// (median 60)." Empty when no study's count is known.
+func (s *BatchSummary) testPointsSentence() string {
+	var ns []int
+	for _, st := range s.Studies {
+		if n, ok := s.TestPoints(st.ID); st.OK && ok {
+			ns = append(ns, n)
+		}
+	}
+	if len(ns) == 0 {
+		return ""
+	}
+	slices.Sort(ns)
+	if ns[0] == ns[len(ns)-1] {
+		if len(ns) == 1 {
+			return fmt.Sprintf("The study held %d test point%s on its base extent.", ns[0], plural(ns[0]))
+		}
+		return fmt.Sprintf("Every study held %d test point%s on its base extent.", ns[0], plural(ns[0]))
+	}
+	med := float64(ns[len(ns)/2])
+	if len(ns)%2 == 0 {
+		med = float64(ns[len(ns)/2-1]+ns[len(ns)/2]) / 2
+	}
+	return fmt.Sprintf("The studies held %d to %d test points on their base extents (median %s); the fewer the points, the wider a difference's interval, "+
+		"and a difference on fewer than %d common test points is not judged.", ns[0], ns[len(ns)-1], fmtG(med), MinPairedPoints)
 }
 
 // compareEffect orders rows by effect, then study and model.

@@ -18,12 +18,13 @@ var batchPage = template.Must(template.New("summary").Parse(batchPageSource))
 // pageRow is one line of the studies table: a study and model, or a
 // failed study.
 type pageRow struct {
-	Study, Link, Model, Base                  string
-	Failed                                    bool
-	Error                                     string
-	Extents                                   int
-	AUCBase, Range, Effect, Interval, Verdict string
-	Null, NullInterval, Reading               string
+	Study, Link, Model, Base           string
+	Failed                             bool
+	Error                              string
+	Extents                            int
+	AUCBase, TestPoints, Range, Effect string
+	Interval, Verdict                  string
+	Null, NullInterval, Reading        string
 }
 
 // pageData is what the template reads.
@@ -97,15 +98,18 @@ func (s *BatchSummary) page(svg []byte) ([]byte, error) {
 func pageRowOf(r BatchRow, link string) pageRow {
 	const none = "–"
 	pr := pageRow{Study: r.Study, Link: link, Model: r.Model, Base: r.BaseExtent, Extents: r.Extents, Verdict: string(r.Verdict),
-		AUCBase: none, Range: none, Effect: none, Interval: none, Null: none, NullInterval: none, Reading: none}
+		AUCBase: none, TestPoints: none, Range: none, Effect: none, Interval: none, Null: none, NullInterval: none, Reading: none}
 	if r.AUCBaseDefined {
 		pr.AUCBase = f3(r.AUCBase)
+	}
+	if r.TestPointsKnown {
+		pr.TestPoints = fmt.Sprint(r.TestPoints)
 	}
 	if r.Extents > 0 {
 		pr.Range = f3(r.AUCMin) + "–" + f3(r.AUCMax)
 	}
 	if r.EffectDefined {
-		pr.Effect = signed3(r.Effect) + " (" + r.EffectExtent + ")"
+		pr.Effect = signed3(r.Effect) + " (" + r.EffectExtent + ", " + fmt.Sprint(r.EffectPoints) + " common)"
 		pr.Interval = signed3(r.EffectLow) + " to " + signed3(r.EffectHigh)
 	}
 	if r.Null != "" {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -31,6 +32,9 @@ type handModel struct {
 	// nullDiff, when set, is the AUC difference from the distance-only
 	// null on the base extent, with its interval.
 	null *effect
+	// points, when set, is the model's test points on the base extent
+	// (a score record), and every difference's common test points.
+	points int
 }
 
 // handStudy builds the Results of one study by hand: extents "base" and
@@ -67,7 +71,7 @@ func handStudy(tol float64, models ...handModel) *Results {
 		outside, inside := 0, 0
 		for i, e := range hm.effects {
 			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
-				Position: position(e.low, e.high, tol)}
+				Position: position(e.low, e.high, tol), CommonPoints: hm.points}
 			mv.Diffs = append(mv.Diffs, d)
 			if mv.Largest < 0 || math.Abs(e.diff) > math.Abs(mv.Diffs[mv.Largest].Diff) {
 				mv.Largest = i
@@ -86,6 +90,9 @@ func handStudy(tol float64, models ...handModel) *Results {
 			mv.Verdict = JudgementRobust
 		}
 		mvs = append(mvs, mv)
+		if hm.points > 0 {
+			r.Scores = append(r.Scores, Score{Model: hm.name, Extent: "base", TestPoints: hm.points})
+		}
 		if hm.null != nil {
 			n := hm.null
 			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
@@ -117,15 +124,15 @@ func handBatch() []StudyResult {
 	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
 	return []StudyResult{
 		{ID: "alpha", Report: "alpha/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
-			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}})},
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}, points: 12})},
 		{ID: "beta", Report: "beta/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.70, 0.705),
-			effects: []effect{{"wide", 0.005, -0.004, 0.014}}, null: &effect{"base", 0.01, -0.02, 0.04}})},
+			effects: []effect{{"wide", 0.005, -0.004, 0.014}}, null: &effect{"base", 0.01, -0.02, 0.04}, points: 500})},
 		{ID: "gamma", Report: "gamma/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.75, 0.72),
-			effects: []effect{{"wide", -0.03, -0.07, 0.01}}})},
+			effects: []effect{{"wide", -0.03, -0.07, 0.01}}, points: 60})},
 		{ID: "delta", Err: errors.New("pipeline: open <models>/m1.tif: no such file\nsecond line")},
 		{ID: "eps", Report: "eps/report.html", Results: handStudy(T,
-			handModel{name: "m1", aucs: auc(0.81, 0.87), effects: []effect{{"wide", 0.06, 0.03, 0.09}}},
-			handModel{name: "m2", aucs: auc(0.79, 0.72), effects: []effect{{"wide", -0.07, -0.09, -0.05}}, null: &effect{"base", -0.05, -0.08, -0.02}})},
+			handModel{name: "m1", aucs: auc(0.81, 0.87), effects: []effect{{"wide", 0.06, 0.03, 0.09}}, points: 40},
+			handModel{name: "m2", aucs: auc(0.79, 0.72), effects: []effect{{"wide", -0.07, -0.09, -0.05}}, null: &effect{"base", -0.05, -0.08, -0.02}, points: 38})},
 		{ID: "zeta", Report: "zeta/report.html", Results: handStudy(T, handModel{name: "m2", aucs: auc(0.66, 0.67),
 			effects: []effect{{"wide", 0.01, -0.005, 0.015}}})},
 	}
@@ -169,7 +176,10 @@ func TestSummarizeCounts(t *testing.T) {
 	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition, "Counted by study and model (6 pairs), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
 		"above the null beyond noise for 1 of 3 study-model pairs, within noise of it for 1 and below it for 1.",
 		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
-		"ran from -0.070 (study eps, model m2, extent wide) to +0.080 (study alpha, model m1, extent wide), median +0.007 over 6 study-model pairs", hijmans2012} {
+		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points), median +0.007 over 6 study-model pairs",
+		// zeta's count is unknown (no score record): 12, 40 (eps: the
+		// larger of its models'), 60, 500.
+		"The studies held 12 to 500 test points on their base extents (median 50)", hijmans2012} {
 		if !strings.Contains(text, want) {
 			t.Errorf("methods text lacks %q:\n%s", want, text)
 		}
@@ -213,7 +223,8 @@ func TestSummaryCSV(t *testing.T) {
 	eps2 := recs[6]
 	for c, want := range map[string]string{"auc_base": "0.79", "auc_min": "0.72", "auc_min_extent": "wide", "auc_max": "0.79", "auc_range": "0.07000000000000006",
 		"effect_extent": "wide", "auc_diff": "-0.07", "auc_diff_ci_low": "-0.09", "auc_diff_ci_high": "-0.05", "auc_verdict": string(JudgementSensitive),
-		"null": DistanceNullName, "auc_minus_null": "-0.05", "null_reading": ReadingBelow, "tolerance": "0.02"} {
+		"null": DistanceNullName, "auc_minus_null": "-0.05", "null_reading": ReadingBelow, "tolerance": "0.02",
+		"test_points": "38", "auc_diff_points": "38"} {
 		if eps2[col[c]] != want {
 			t.Errorf("eps/m2 %s = %q, want %q (hand-built values; range 0.79-0.72 in float64)", c, eps2[col[c]], want)
 		}
@@ -221,6 +232,10 @@ func TestSummaryCSV(t *testing.T) {
 	// gamma has no null: the null columns stay empty.
 	if g := recs[3]; g[col["null"]] != "" || g[col["null_reading"]] != "" || g[col["auc_minus_null"]] != "" {
 		t.Errorf("gamma null columns %q", g)
+	}
+	// zeta has no score record: its test points are unknown, empty.
+	if z := recs[7]; z[col["test_points"]] != "" || z[col["auc_diff_points"]] != "0" {
+		t.Errorf("zeta test point columns %q", z)
 	}
 	var v bytes.Buffer
 	if err := s.WriteVerdictsCSV(&v); err != nil {
@@ -370,10 +385,19 @@ func TestWriteSummary(t *testing.T) {
 			t.Errorf("%q at %g pt", tx.s, tx.size)
 		}
 	}
+	// A row is labelled with its study and, when known, the study's test
+	// points on its base extent (zeta's are not).
 	for _, id := range s.EffectOrder() {
-		if !labels[id] {
-			t.Errorf("figure has no row label %q", id)
+		want := id
+		if n, ok := s.TestPoints(id); ok {
+			want = fmt.Sprintf("%s (n = %d)", id, n)
 		}
+		if !labels[want] {
+			t.Errorf("figure has no row label %q", want)
+		}
+	}
+	if !labels["alpha (n = 12)"] || !labels["beta (n = 500)"] || !labels["zeta"] {
+		t.Errorf("row labels %v", labels)
 	}
 	if labels["delta"] {
 		t.Error("the failed study has a row in the figure")

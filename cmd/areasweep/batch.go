@@ -126,7 +126,7 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
 	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
-	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished (replacing areasweep's files in their folders)")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
@@ -189,15 +189,17 @@ type batchStudy struct {
 // resolveBatch reads the table and resolves every row into run options,
 // collecting every problem, by line and column, before anything runs.
 func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
+	// A table with problems still gives its good rows, checked below
+	// too, so that every problem is listed in one round.
 	b, err := inputs.LoadBatch(o.Table)
-	if err != nil {
+	var errs inputs.BatchErrors
+	if err != nil && (b == nil || !errors.As(err, &errs)) {
 		return nil, err
 	}
 	out, err := filepath.Abs(o.Out)
 	if err != nil {
 		return nil, fmt.Errorf("--out %s: %w", o.Out, err)
 	}
-	var errs inputs.BatchErrors
 	reserved := map[string]bool{}
 	for _, n := range append(report.SummaryNames(), batchMarker) {
 		reserved[strings.ToLower(n)] = true
@@ -227,6 +229,7 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 		studies = append(studies, st)
 	}
 	if len(errs) > 0 {
+		inputs.SortBatchErrors(errs)
 		return nil, errs
 	}
 	if len(o.Only) > 0 {
@@ -310,9 +313,34 @@ func missingInput(o *pipeline.Options) (string, error) {
 
 // canonicalSettings encodes the settings that change a study's numbers or
 // files: everything but the output folder, --force, --quiet, the worker
-// count (results do not depend on it) and the recorded version.
+// count (results do not depend on it) and the recorded version. Input
+// paths are made absolute: the table's relative paths are joined to the
+// table's folder as the user named it, so the same table read from
+// another working directory (or by a scheduler task, which names it by
+// its absolute path) must give the same checksum.
 func canonicalSettings(o pipeline.Options) []byte {
 	o.Out, o.Force, o.Quiet, o.Workers, o.Version, o.StudyFile = "", false, false, 0, "", ""
+	abs := func(p string) string {
+		if p == "" {
+			return p
+		}
+		if a, err := filepath.Abs(p); err == nil {
+			return a
+		}
+		return p
+	}
+	named := func(items []string) []string {
+		out := make([]string, len(items))
+		for i, it := range items {
+			out[i] = it
+			if name, path, err := inputs.ParseNamedPath(it); err == nil {
+				out[i] = name + "=" + abs(path)
+			}
+		}
+		return out
+	}
+	o.Occurrences, o.Region, o.Ecoregions = abs(o.Occurrences), abs(o.Region), abs(o.Ecoregions)
+	o.Models, o.Nulls, o.Extra = named(o.Models), named(o.Nulls), named(o.Extra)
 	data, err := json.Marshal(o)
 	if err != nil {
 		panic("batch: settings cannot be encoded: " + err.Error()) // plain fields only: a programmer's error
@@ -350,14 +378,31 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	if err != nil {
 		return fault.BadInput(err)
 	}
+	if err := o.Slurm.clientsPresent(); err != nil {
+		return fault.BadInput(err)
+	}
 	if err := claimBatchDir(o.Out); err != nil {
 		return err
 	}
 	if o.Slurm.Enabled {
 		return batchSlurm(ctx, o, studies)
 	}
+	note := "the running studies' partial results were removed; the studies that had finished keep their folders, and running the same command again runs the others"
+	defer stoppedNote.Store(stoppedNote.Swap(&note))
 	p := &progress{o: o, total: len(studies)}
 	errs := runStudies(ctx, o, studies, p)
+	// Another batch on the same --out (or a scheduler task) may have
+	// finished a study that failed here (its folder was in use, or already
+	// held its outputs): the summary and the exit status go by the
+	// folders as they are now.
+	for i, st := range studies {
+		if errs[i] != nil {
+			if s, _ := st.state(); s == stateDone {
+				p.line(st.id, "finished by another run meanwhile")
+				errs[i] = nil
+			}
+		}
+	}
 	if !o.SummaryOnly || o.Shards > 1 {
 		for i, st := range studies {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])
@@ -376,16 +421,38 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 		fmt.Fprintf(o.IO.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
 	}
 	if failed > 0 {
-		var ids []string
-		for i, err := range errs {
-			if err != nil {
-				ids = append(ids, studies[i].id)
-			}
-		}
-		return fmt.Errorf("%d of %d studies failed: %s; %s lists each with its error, and running the same command again retries them",
-			failed, len(studies), strings.Join(ids, ", "), filepath.Join(o.Out, report.SummaryHTML))
+		return failedStudies(o, studies, errs, failed)
 	}
 	return nil
+}
+
+// maxFailuresShown is how many failed studies' errors the batch's final
+// message lists.
+const maxFailuresShown = 20
+
+// failedStudies is the batch's final error: the failed studies' ids, then
+// each with its error, one per line (--quiet drops the progress lines,
+// and with --only, as in a scheduler task's log, no summary lists them).
+func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
+	var ids, lines []string
+	for i, err := range errs {
+		if err == nil {
+			continue
+		}
+		ids = append(ids, studies[i].id)
+		if len(lines) < maxFailuresShown {
+			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(err.Error()))
+		}
+	}
+	if len(ids) > maxFailuresShown {
+		lines = append(lines, fmt.Sprintf("\n  ... and %d more", len(ids)-maxFailuresShown))
+	}
+	where := ""
+	if len(o.Only) == 0 {
+		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
+	}
+	return fmt.Errorf("%d of %d studies failed: %s; %srunning the same command again retries them:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, strings.Join(lines, ""))
 }
 
 // failurePath is where a study's last error is kept, so that a summary
@@ -486,7 +553,10 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		case s == stateStale && !o.Force:
 			errs[i] = fmt.Errorf("%s was made from other settings (the table row changed since it finished); add --force to run it again, or remove the folder", st.dir)
 			continue
-		case s == stateStale:
+		case s == stateStale || o.Force:
+			// --force also lets a study run into a folder left without
+			// a marker (the user's, or one given areasweep's files by
+			// hand): run --force replaces areasweep's files only.
 			st.opts.Force = true
 		}
 		if st.opts.Workers == 0 {

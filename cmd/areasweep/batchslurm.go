@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -13,6 +14,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
@@ -51,6 +53,26 @@ func (o *SlurmOptions) validate() error {
 		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, settings.MaxWorkers)
 	case o.MaxParallel < 0:
 		return fmt.Errorf("--max-parallel is %d; give 0 (no limit) or more", o.MaxParallel)
+	}
+	return nil
+}
+
+// clientsPresent checks, before anything is written, that the SLURM
+// commands --submit (sbatch) and --wait (squeue) run are on PATH.
+func (o *SlurmOptions) clientsPresent() error {
+	var need [][2]string
+	if o.Submit {
+		need = append(need, [2]string{"--submit", "sbatch"})
+	}
+	if o.Wait {
+		need = append(need, [2]string{"--wait", "squeue"})
+	}
+	for _, n := range need {
+		flag, c := n[0], n[1]
+		if _, err := exec.LookPath(c); err != nil {
+			return fmt.Errorf("%s: %s is not on PATH, so this machine cannot submit SLURM jobs (on a cluster, run this on a login node, after loading SLURM's module if the site uses modules); "+
+				"without --submit, --slurm writes the job files and prints the sbatch commands to run where SLURM is", flag, c)
+		}
 	}
 	return nil
 }
@@ -126,19 +148,14 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if err != nil {
 		return fault.Internal(err)
 	}
-	// A study already merged needs none of its shards again, even if
-	// their folders were removed since.
-	var pending []int
-	for _, k := range p.Pending() {
-		for _, st := range studies {
-			if st.id == p.Tasks[k-1].Study {
-				if s, _ := st.state(); s != stateDone {
-					pending = append(pending, k)
-				}
-			}
-		}
+	pending, stale, err := slurmPending(o, p, studies)
+	if err != nil {
+		return err
 	}
 	w := o.IO.Out
+	if len(stale) > 0 {
+		fmt.Fprintf(w, "not submitted: %s finished from other settings (the table row changed since); add --force to run them again, or remove their folders\n", strings.Join(stale, ", "))
+	}
 	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, plural(p.CPUs))
 	fmt.Fprintf(w, "merge job: %s\nmanifest:  %s\nlogs:      %s\n", files.Merge, files.Manifest, files.Logs)
 	if !o.Slurm.Submit {
@@ -166,16 +183,78 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	}
 	var notDone []string
 	for _, st := range studies {
-		if s, _ := st.state(); s != stateDone {
+		if s, _ := st.state(); s == statePending {
 			notDone = append(notDone, st.id)
 		}
 	}
-	if len(notDone) > 0 {
-		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks",
-			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs)
+	switch {
+	case len(notDone) > 0:
+		also := ""
+		if len(stale) > 0 {
+			also = fmt.Sprintf(" (and add --force for %s, made from other settings)", strings.Join(stale, ", "))
+		}
+		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
+			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs, also)
+	case len(stale) > 0:
+		return fmt.Errorf("%d of %d studies were made from other settings and not run again (%s): add --force to run them again, or remove their folders",
+			len(stale), len(studies), strings.Join(stale, ", "))
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
 	return nil
+}
+
+// slurmPending lists the array indices (from 1) of the tasks to submit:
+// those of studies not finished, except shards already finished. A study
+// made from other settings (its marker records another settings checksum:
+// the row changed since) is submitted only with --force, its marker
+// removed first so that the array script does not skip it as finished;
+// without --force it is listed in stale instead. A shard made from other
+// settings runs again (its marker removed), as in a local batch.
+func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pending []int, stale []string, err error) {
+	byID := map[string]*batchStudy{}
+	for _, st := range studies {
+		byID[st.id] = st
+	}
+	isStale := map[string]bool{}
+	unmark := func(dir string) error {
+		if err := os.Remove(batch.MarkerPath(dir)); err != nil && !errors.Is(err, os.ErrNotExist) {
+			return fmt.Errorf("--force: cannot remove the completion marker of %s made from other settings: %w", dir, err)
+		}
+		return nil
+	}
+	for i, t := range p.Tasks {
+		st := byID[t.Study]
+		switch s, _ := st.state(); {
+		case s == stateDone:
+			continue // a study already merged needs none of its shards again
+		case s == stateStale && !o.Force:
+			if !isStale[st.id] {
+				stale = append(stale, st.id)
+			}
+			isStale[st.id] = true
+			continue
+		case s == stateStale:
+			if err := unmark(st.dir); err != nil {
+				return nil, nil, err
+			}
+		}
+		if t.Shards > 1 {
+			// A shard's folder is the batch's own: one made from other
+			// settings runs again, as in a local batch.
+			switch ss, _ := shardState(o.Out, st, t.Shard); ss {
+			case stateDone:
+				continue
+			case stateStale:
+				if err := unmark(t.Out); err != nil {
+					return nil, nil, err
+				}
+			}
+		}
+		if !slurm.Finished(t) {
+			pending = append(pending, i+1)
+		}
+	}
+	return pending, stale, nil
 }
 
 func plural(n int) string {

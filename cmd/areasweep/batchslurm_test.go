@@ -1,6 +1,7 @@
 package main
 
 import (
+	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/slurm/slurmtest"
 	"bytes"
 	"context"
@@ -95,6 +96,18 @@ gamma,sq=model2.tif,occ.csv,region.geojson,13
 			if err != nil || len(want) == 0 || !bytes.Equal(got, want) {
 				t.Errorf("%s/%s from the cluster differs from a plain run (%v)\n%s", c.id, f, err, dumpLogs(logs))
 			}
+		}
+	}
+	// A shard task's completion marker keeps the batch's settings
+	// checksum (a later run compares it with the table's row) beside the
+	// task's job line; the study's, written by the merge job, has it too.
+	for _, c := range []struct {
+		dir string
+		job bool
+	}{{filepath.Join(out, "alpha"), false}, {filepath.Join(out, batchMarker, "shards", "beta", "2"), true}} {
+		m, err := batch.ReadMarker(c.dir)
+		if err != nil || m["settings"] == "" || (m["job"] != "") != c.job {
+			t.Errorf("marker of %s: %v, %v; want the batch's settings (and the task's job: %v)", c.dir, m, err, c.job)
 		}
 	}
 	summary, err := os.ReadFile(filepath.Join(out, "summary.csv"))

@@ -10,6 +10,7 @@ import (
 	"runtime/debug"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"syscall"
 
 	"github.com/spf13/cobra"
@@ -64,6 +65,16 @@ func setRunLog(b *pipeline.Log) {
 	runLog.mu.Unlock()
 }
 
+// stoppedNote is what a signal's message says of the outputs: a run's
+// own, or the batch's (batchRun sets it: the studies finished before the
+// signal stay).
+var stoppedNote atomic.Pointer[string]
+
+func init() {
+	note := "this run's partial results were removed and --out was left as it was"
+	stoppedNote.Store(&note)
+}
+
 // Main runs the command line args and returns the exit code. GDAL is set
 // up once here (drivers, configuration, the message recorder); a signal
 // removes the run's staging folder and exits with 128+N; a panic is
@@ -80,7 +91,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		case s := <-sigs:
 			outdir.AbortAll()
 			n := int(s.(syscall.Signal))
-			fmt.Fprintf(errOut, "areasweep: stopped by %s; this run's partial results were removed and --out was left as it was\n", signalName(s))
+			fmt.Fprintf(errOut, "areasweep: stopped by %s; %s\n", signalName(s), *stoppedNote.Load())
 			os.Exit(128 + n)
 		case <-stop:
 		}

@@ -157,6 +157,7 @@ func TestMergeRefuses(t *testing.T) {
 	s := newSmallStudy(t)
 	two := runShards(t, s, filepath.Join(s.dir, "two"), 2)
 	otherSeed := runShards(t, s, filepath.Join(s.dir, "seed"), 2, "--seed", "10")
+	otherSettings := runShards(t, s, filepath.Join(s.dir, "settings"), 2, "--iterations", "60", "--tolerance-auc", "0.03")
 	// Shard 2 of a run whose occurrences differ by one line.
 	occ2 := filepath.Join(s.dir, "occ2.csv")
 	b, _ := os.ReadFile(s.occ)
@@ -175,6 +176,8 @@ func TestMergeRefuses(t *testing.T) {
 	os.WriteFile(corrupt, c, 0o644)
 	cut := filepath.Join(s.dir, "cut.aspf")
 	os.WriteFile(cut, data[:len(data)/3], 0o644)
+	empty := filepath.Join(s.dir, "empty.aspf")
+	os.WriteFile(empty, nil, 0o644)
 	notShard := filepath.Join(s.dir, "results.aspf")
 	os.WriteFile(notShard, []byte(`{"schema_version": 1}`), 0o644)
 	cases := []struct {
@@ -183,12 +186,14 @@ func TestMergeRefuses(t *testing.T) {
 		want  []string
 	}{
 		{"mixed seeds", []string{two[0], otherSeed[1]}, []string{"seed (9 vs 10)", file(two[0], 1, 2), file(otherSeed[1], 2, 2)}},
+		{"other settings", []string{two[0], otherSettings[1]}, []string{"differ in settings (iterations 50 vs 60, tolerance-auc 0.02 vs 0.03)", file(otherSettings[1], 2, 2)}},
 		{"changed input", []string{two[0], otherInput[1]}, []string{"occurrences", "checksum", file(otherInput[1], 2, 2)}},
 		{"missing shard", []string{two[1]}, []string{"shard(s) 1 of 2 not given", file(two[1], 2, 2)}},
 		{"duplicate shard", []string{two[0], two[1], dup}, []string{"both shard 1", "copy.aspf"}},
 		{"corrupt file", []string{corrupt, two[1]}, []string{corrupt, "checksum mismatch"}},
 		{"cut short", []string{two[0], cut}, []string{cut}},
 		{"not a partial file", []string{notShard}, []string{notShard, "ASPF"}},
+		{"empty file", []string{two[0], empty}, []string{empty, "is empty (0 bytes)", "run that shard again"}},
 		{"empty folder", []string{t.TempDir()}, []string{"holds no partial file"}},
 	}
 	for _, tc := range cases {
@@ -301,6 +306,20 @@ func TestShardsShareAFolder(t *testing.T) {
 	if _, se, code := runBin(t, "merge", "--quiet", "--out", filepath.Join(s.dir, "merged"), dir); code != 0 {
 		t.Fatalf("merge of the folder: exit %d: %s", code, se)
 	}
+	// Another split run into the same folder: the merge of the folder is
+	// refused saying it holds several splits and which files to give.
+	_, se, code := runBin(t, s.shardArgs(t, dir, "--shard", "1/3", "--force")...)
+	if code != 0 {
+		t.Fatalf("shard 1/3: exit %d: %s", code, se)
+	}
+	out := filepath.Join(s.dir, "merged-mixed")
+	_, se, code = runBin(t, "merge", "--quiet", "--out", out, dir)
+	if code != 2 || !strings.Contains(se, dir+" holds the partial files of several splits") || !strings.Contains(se, "shard-*-of-") {
+		t.Fatalf("merge of a folder with two splits: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the refused merge created --out")
+	}
 }
 
 // TestMergeRelativePaths: shards run with paths relative to their folder
@@ -339,6 +358,19 @@ func TestMergeRelativePaths(t *testing.T) {
 	}
 	if se, code := run(s.dir, "merge", "--quiet", "--out", out, "shards/1", "shards/2"); code != 0 {
 		t.Fatalf("merge from the shards' folder: exit %d: %s", code, se)
+	}
+	// From the right folder, with one input renamed since the shards ran:
+	// the message names that input as missing, not the folder as wrong.
+	if err := os.Rename(filepath.Join(s.dir, "model.tif"), filepath.Join(s.dir, "model-old.tif")); err != nil {
+		t.Fatal(err)
+	}
+	out2 := filepath.Join(elsewhere, "merged2")
+	se, code = run(s.dir, "merge", "--quiet", "--out", out2, "shards/1", "shards/2")
+	if code != 2 || !strings.Contains(se, "model.tif is missing from "+s.dir) || !strings.Contains(se, "removed or renamed") || strings.Contains(se, "run the merge from that folder") {
+		t.Fatalf("merge with an input renamed: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out2); err == nil {
+		t.Error("the refused merge created --out")
 	}
 }
 

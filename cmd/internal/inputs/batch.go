@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 
 	"go.yaml.in/yaml/v3"
@@ -137,17 +138,25 @@ var batchIDRE = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9_.\-]{0,63}$`)
 var requiredKeys = []string{"model", "occurrences", "region"}
 
 // LoadBatch reads the study table at path (YAML for .yaml/.yml, else CSV)
-// and resolves relative paths against its folder. Lines may end in a line
+// and resolves relative paths against its folder, made absolute. Lines may end in a line
 // feed, a carriage return and line feed, or a carriage return alone
 // (Excel's "CSV (Macintosh)"; crLines, as for the occurrence table). Every
-// problem is reported, as BatchErrors, before anything runs.
+// problem is reported, as BatchErrors in line order, before anything
+// runs; with them comes the batch of the rows without a problem (nil when
+// the table could not be read at all), for the caller's own checks only:
+// such a batch must not run.
 func LoadBatch(path string) (*Batch, error) {
 	if err := checkRegular(path, "study table"); err != nil {
 		return nil, err
 	}
 	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return nil, fmt.Errorf("inputs: study table %s does not exist; check the path (areasweep batch --template prints an example table)", path)
+	case errors.Is(err, os.ErrPermission):
+		return nil, fmt.Errorf("inputs: study table %s cannot be read (permission denied); check its permissions", path)
+	case err != nil:
+		return nil, fmt.Errorf("inputs: cannot read study table %s: %w", path, err)
 	}
 	defer f.Close()
 	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
@@ -157,8 +166,16 @@ func LoadBatch(path string) (*Batch, error) {
 		}
 		return nil, fmt.Errorf("inputs: cannot read study table: %w", err)
 	}
+	// The folder is made absolute, so that a study's recorded input paths
+	// (results.json) do not depend on how the table was named: a local
+	// batch and a scheduler task (which names the table absolutely) write
+	// the same bytes.
+	dir := filepath.Dir(path)
+	if abs, err := filepath.Abs(dir); err == nil {
+		dir = abs
+	}
 	ext := strings.ToLower(filepath.Ext(path))
-	return ParseBatch(data, path, filepath.Dir(path), ext == ".yaml" || ext == ".yml")
+	return ParseBatch(data, path, dir, ext == ".yaml" || ext == ".yml")
 }
 
 // ParseBatch reads a study table from data; name is used in messages,
@@ -167,6 +184,10 @@ func LoadBatch(path string) (*Batch, error) {
 func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, error) {
 	if name == "" {
 		name = "study table"
+	}
+	if head := data[:min(len(data), 512)]; bytes.IndexByte(head, 0) >= 0 && !bytes.HasPrefix(head, []byte{0xFF, 0xFE}) && !bytes.HasPrefix(head, []byte{0xFE, 0xFF}) {
+		return nil, BatchErrors{{File: name, Err: fmt.Errorf("%w: this is a binary file%s, not a study table; give the CSV or YAML table of the studies (areasweep batch --template prints an example)",
+			ErrBatchSyntax, binaryKind(head))}}
 	}
 	data, _ = io.ReadAll(crLines(bytes.NewReader(data))) // from memory: cannot fail
 	// After crLines, so that the line counts carriage-return-only lines.
@@ -181,9 +202,26 @@ func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, 
 	}
 	p.finish()
 	if len(p.errs) > 0 {
-		return nil, p.errs
+		// The rows without a problem are returned too, so that the
+		// caller's own checks (input files, settings) can report theirs
+		// in the same round.
+		var ok []BatchStudy
+		for i, s := range p.b.Studies {
+			if !p.bad[i] {
+				ok = append(ok, s)
+			}
+		}
+		p.b.Studies = ok
+		SortBatchErrors(p.errs)
+		return p.b, p.errs
 	}
 	return p.b, nil
+}
+
+// SortBatchErrors orders problems by line (problems of the whole table,
+// line 0, first), keeping the order of those on one line.
+func SortBatchErrors(es BatchErrors) {
+	slices.SortStableFunc(es, func(a, b *BatchError) int { return a.Line - b.Line })
 }
 
 type batchParser struct {
@@ -195,6 +233,8 @@ type batchParser struct {
 	// a bad value is not reported a second time as missing.
 	failed []map[string]bool
 	row    map[string]bool
+	// bad marks, per study, a row with some problem.
+	bad []bool
 }
 
 func (p *batchParser) add(line int, column, study string, err error) {
@@ -357,9 +397,11 @@ func (p *batchParser) parseYAML(data []byte) {
 		}
 		st := &Study{}
 		p.row = map[string]bool{}
+		before := len(p.errs)
 		p.mapping(st, item, id, "id")
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: idLine, Study: st})
 		p.failed = append(p.failed, p.row)
+		p.bad = append(p.bad, len(p.errs) > before)
 		p.row = nil
 	}
 }
@@ -445,6 +487,7 @@ func (p *batchParser) parseCSV(data []byte) {
 		id := strings.TrimSpace(rec[0])
 		st := &Study{}
 		p.row = map[string]bool{}
+		before := len(p.errs)
 		for j := 1; j < len(rec); j++ {
 			cell := strings.TrimSpace(rec[j])
 			if cell == "" {
@@ -455,6 +498,7 @@ func (p *batchParser) parseCSV(data []byte) {
 		}
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: line, Study: st})
 		p.failed = append(p.failed, p.row)
+		p.bad = append(p.bad, len(p.errs) > before)
 		p.row = nil
 	}
 	if cols == nil {
@@ -542,11 +586,12 @@ func (p *batchParser) finish() {
 	seen := map[string]int{}
 	for i := range p.b.Studies {
 		s := &p.b.Studies[i]
+		before := len(p.errs)
 		switch {
 		case s.ID == "":
 			p.add(s.Line, "id", "", fmt.Errorf("%w: the id is empty; give every study an id (letters, digits, '_', '-', '.')", ErrBatchID))
 		case !batchIDRE.MatchString(s.ID):
-			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 letters, digits, '_', '-' or '.', starting with a letter or digit", ErrBatchID, shown(s.ID)))
+			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 letters, digits, '_', '-' or '.', starting with a letter or digit%s", ErrBatchID, shown(s.ID), idSuggestion(s.ID)))
 		default:
 			low := strings.ToLower(s.ID)
 			if first, dup := seen[low]; dup {
@@ -565,7 +610,27 @@ func (p *batchParser) finish() {
 			}
 		}
 		s.Study = merged
+		if len(p.errs) > before {
+			p.bad[i] = true
+		}
 	}
+}
+
+var idUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
+
+// idSuggestion proposes a folder-safe id for a refused one: runs of other
+// characters (spaces, '/', accented letters) replaced by '_', leading and
+// trailing '_', '.' and '-' removed, cut to 64 characters; "" when
+// nothing usable is left.
+func idSuggestion(id string) string {
+	s := strings.Trim(idUnsafe.ReplaceAllString(id, "_"), "_.-")
+	if len(s) > 64 {
+		s = strings.TrimRight(s[:64], "_.-")
+	}
+	if s == "" || !batchIDRE.MatchString(s) {
+		return ""
+	}
+	return fmt.Sprintf(", for example %q", s)
 }
 
 // overlay returns a copy of base with every setting present in top laid

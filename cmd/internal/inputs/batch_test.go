@@ -178,25 +178,31 @@ elm,gbm=g.tif,p.csv
 OAK,gbm=h.tif,p.csv,r.gpkg,,
 yew,,p.csv,r.gpkg,,
 `
-	_, err := ParseBatch([]byte(text), "t.csv", "", false)
+	b, err := ParseBatch([]byte(text), "t.csv", "", false)
 	var es BatchErrors
 	if !errors.As(err, &es) {
 		t.Fatalf("not BatchErrors: %v", err)
+	}
+	// The rows without a problem come with the errors, for the caller's
+	// own checks: the first oak only (OAK repeats it, yew has no model).
+	if b == nil || len(b.Studies) != 1 || b.Studies[0].ID != "oak" || b.Studies[0].Line != 3 {
+		t.Errorf("rows without a problem: %+v", b)
 	}
 	type want struct {
 		line   int
 		column string
 		kind   error
 	}
+	// In line order (one line's problems in the order found).
 	wants := []want{
-		{7, "model", ErrBadValue},      // fir: gbm has no '='
-		{8, "seed", ErrBadValue},       // pine: negative seed
-		{9, "fraction", ErrBadValue},   // ash: not a number
-		{10, "", ErrBatchSyntax},       // elm: 3 cells
 		{4, "id", ErrBatchID},          // second oak
 		{5, "id", ErrBatchID},          // ../up
 		{6, "id", ErrBatchID},          // empty id
+		{7, "model", ErrBadValue},      // fir: gbm has no '='
+		{8, "seed", ErrBadValue},       // pine: negative seed
+		{9, "fraction", ErrBadValue},   // ash: not a number
 		{9, "region", ErrBatchMissing}, // ash: no region
+		{10, "", ErrBatchSyntax},       // elm: 3 cells
 		{11, "id", ErrBatchID},         // OAK repeats oak ignoring case
 		{12, "model", ErrBatchMissing}, // yew: no model (fir's bad model is not reported again as missing)
 	}
@@ -301,4 +307,77 @@ func FuzzParseBatch(f *testing.F) {
 			}
 		}
 	})
+}
+
+// TestBatchIDSuggestion: a refused id comes with a folder-safe one when
+// one can be made from it.
+func TestBatchIDSuggestion(t *testing.T) {
+	for id, want := range map[string]string{
+		"Quercus robur":  `, for example "Quercus_robur"`,
+		"Lynx lynx (EU)": `, for example "Lynx_lynx_EU"`,
+		"sp/x":           `, for example "sp_x"`,
+		"Abies_alba_é":   `, for example "Abies_alba"`,
+		"_hidden":        `, for example "hidden"`,
+		"..":             "",
+		"ü":              "",
+	} {
+		if got := idSuggestion(id); got != want {
+			t.Errorf("idSuggestion(%q) = %q, want %q", id, got, want)
+		}
+	}
+	_, err := ParseBatch([]byte("id,model,occurrences,region\nQuercus robur,m=a.tif,p.csv,r.gpkg\n"), "t.csv", "", false)
+	if err == nil || !strings.Contains(err.Error(), `"Quercus robur" cannot name a folder`) || !strings.Contains(err.Error(), `for example "Quercus_robur"`) {
+		t.Errorf("got %v", err)
+	}
+}
+
+// TestLoadBatchAbsolutePaths: a table named by a relative path resolves
+// its rows' relative paths to absolute ones, so that the studies' recorded
+// inputs do not depend on the working directory or on how the table was
+// named.
+func TestLoadBatchAbsolutePaths(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "studies.csv")
+	if err := os.WriteFile(path, []byte("id,model,occurrences,region\noak,m=oak/m.tif,oak/p.csv,/abs/r.gpkg\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	wd, err := os.Getwd()
+	if err != nil {
+		t.Fatal(err)
+	}
+	rel, err := filepath.Rel(wd, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{path, rel} {
+		b, err := LoadBatch(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		st := *b.Studies[0].Study
+		if st["occurrences"] != filepath.Join(dir, "oak", "p.csv") || st["region"] != "/abs/r.gpkg" {
+			t.Errorf("table named %s: occurrences %v, region %v", name, st["occurrences"], st["region"])
+		}
+		if m, _ := st["model"].([]string); len(m) != 1 || m[0] != "m="+filepath.Join(dir, "oak", "m.tif") {
+			t.Errorf("table named %s: model %v", name, st["model"])
+		}
+	}
+}
+
+// TestLoadBatchWrongFile: a missing table and a binary file given as the
+// table are named with what to do, not with Go's or a decoder's words.
+func TestLoadBatchWrongFile(t *testing.T) {
+	dir := t.TempDir()
+	_, err := LoadBatch(filepath.Join(dir, "nope.csv"))
+	if err == nil || !strings.Contains(err.Error(), "nope.csv does not exist; check the path") || strings.Contains(err.Error(), "no such file") {
+		t.Errorf("missing table: %v", err)
+	}
+	tif := filepath.Join(dir, "model.tif")
+	if err := os.WriteFile(tif, []byte("II*\x00\x08\x00\x00\x00\xfa\x01"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err = LoadBatch(tif)
+	if !errors.Is(err, ErrBatchSyntax) || !strings.Contains(err.Error(), "binary file (a TIFF image, such as a GeoTIFF raster), not a study table") || strings.Contains(err.Error(), "Latin-1") {
+		t.Errorf("GeoTIFF as the table: %v", err)
+	}
 }

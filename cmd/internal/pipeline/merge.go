@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -72,15 +73,28 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	rec.apply(&o)
 	// The shards record the input paths as they were given: a relative
 	// one is relative to the folder shard 1 ran in.
+	// When some relative input is found and another is not, the merge
+	// runs in the right folder and that input was removed or renamed.
+	var missing []string
+	found := false
 	for _, p := range o.InputPaths() {
 		if p == "" || filepath.IsAbs(p) {
 			continue
 		}
 		if _, err := os.Stat(p); err != nil {
-			here, _ := os.Getwd()
-			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
-				"run the merge from that folder, or run the shards again with absolute paths", first.Source, p, here))
+			missing = append(missing, p)
+		} else {
+			found = true
 		}
+	}
+	if len(missing) > 0 {
+		here, _ := os.Getwd()
+		if found {
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s is missing from %s, where the shards' other inputs are: it was removed or renamed since the shards ran; "+
+				"restore it, or run the shards again", first.Source, missing[0], here))
+		}
+		return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
+			"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0], here))
 	}
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
@@ -166,6 +180,8 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if errors.Is(err, metrics.ErrShardMissing) {
 			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
 		}
+		nameSettings(err, files, headers)
+		mixedSplits(err, files, headers)
 		return nil, metrics.ShardHeader{}, fault.BadInput(err)
 	}
 	if h := headers[0]; h.Tool != version {
@@ -193,6 +209,67 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// nameSettings adds to CheckShardSet's "differ in settings" which
+// settings differ, read from the two files' recorded runs: the first
+// header and the first that differs from it (the pair CheckShardSet
+// names), when that one differs in settings alone.
+func nameSettings(err error, files []string, headers []metrics.ShardHeader) {
+	var se *metrics.ShardError
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) {
+		return
+	}
+	ref := headers[0]
+	for i := 1; i < len(headers); i++ {
+		h := headers[i]
+		if h.Tool == ref.Tool && slices.Equal(h.Inputs, ref.Inputs) && h.Settings == ref.Settings {
+			continue
+		}
+		if h.Tool != ref.Tool || !slices.Equal(h.Inputs, ref.Inputs) {
+			return
+		}
+		run := func(f string) []byte {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				return nil
+			}
+			sh, err := shardfile.Decode(data, f)
+			if err != nil {
+				return nil
+			}
+			return sh.Run
+		}
+		if d := settingsDiff(run(files[0]), run(files[i])); d != "" {
+			se.Detail = strings.Replace(se.Detail, "differ in settings", "differ in settings ("+d+")", 1)
+		}
+		return
+	}
+}
+
+// mixedSplits adds to a refusal of shards of different counts that one
+// folder holds partial files of several splits (shards run there with
+// --force and another N), and which files to give instead.
+func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
+	var se *metrics.ShardError
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) || !strings.Contains(se.Detail, "differ in shard count") {
+		return
+	}
+	counts := map[string]map[int]bool{}
+	for i, f := range files {
+		d := filepath.Dir(f)
+		if counts[d] == nil {
+			counts[d] = map[int]bool{}
+		}
+		counts[d][headers[i].Shards] = true
+	}
+	for _, f := range files {
+		d := filepath.Dir(f)
+		if len(counts[d]) > 1 {
+			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", d, headers[0].Shards)
+			return
+		}
+	}
 }
 
 // useShards makes every pass of s take its sums from merged instead of

@@ -7,6 +7,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"path/filepath"
+	"reflect"
+	"strings"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -85,6 +87,14 @@ func (r recordedRun) apply(o *Options) {
 // folders or machines still match. The inputs themselves are compared by
 // checksum (ShardHeader.Inputs), the seed on its own.
 func (r recordedRun) settingsHash() string {
+	sum := sha256.Sum256(r.canonical())
+	return hex.EncodeToString(sum[:])
+}
+
+// canonical is the JSON the settings hash is taken of: input paths left
+// out (the names of NAME=PATH items kept), and the seed (compared on its
+// own, ShardHeader.Seed).
+func (r recordedRun) canonical() []byte {
 	names := func(items []string) []string {
 		out := []string{}
 		for _, it := range items {
@@ -96,10 +106,32 @@ func (r recordedRun) settingsHash() string {
 	c := r
 	c.Models, c.Nulls, c.Extra = names(r.Models), names(r.Nulls), names(r.Extra)
 	c.Occurrences, c.Region, c.Ecoregions = "", "", ""
-	c.Seed = 0              // compared on its own (ShardHeader.Seed)
+	c.Seed = 0
 	b, _ := json.Marshal(c) // plain values: cannot fail
-	sum := sha256.Sum256(b)
-	return hex.EncodeToString(sum[:])
+	return b
+}
+
+// settingsDiff names the settings in which two recorded runs (partial
+// files' run sections) differ, as "iterations 200 vs 300", in the
+// recorded order; "" when they cannot be read or do not differ.
+func settingsDiff(a, b []byte) string {
+	var ra, rb recordedRun
+	if json.Unmarshal(a, &ra) != nil || json.Unmarshal(b, &rb) != nil {
+		return ""
+	}
+	var ma, mb map[string]json.RawMessage
+	if json.Unmarshal(ra.canonical(), &ma) != nil || json.Unmarshal(rb.canonical(), &mb) != nil {
+		return ""
+	}
+	var diffs []string
+	t := reflect.TypeFor[recordedRun]()
+	for i := range t.NumField() {
+		k, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+		if va, vb := string(ma[k]), string(mb[k]); va != vb {
+			diffs = append(diffs, strings.ReplaceAll(k, "_", "-")+" "+va+" vs "+vb)
+		}
+	}
+	return strings.Join(diffs, ", ")
 }
 
 // shardHeader is the partial-file header of shard i of n of the prepared

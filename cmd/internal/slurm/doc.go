@@ -25,7 +25,10 @@
 // MarkerName. The array script writes it only after the task's command
 // exited with status 0, as its last step, atomically (a temporary file in
 // the same folder, then a rename), so a marker never stands beside
-// half-written outputs. The array script skips a task whose marker exists,
+// half-written outputs. A marker the command wrote itself (areasweep
+// batch's, with the study's settings checksum) is kept, the script adding
+// its own lines to it. A failed task removes the output folder it created
+// when that folder is still empty. The array script skips a task whose marker exists,
 // and Plan.Pending lists the unfinished tasks, so that a resubmission can
 // name only those in --array: tasks are idempotent and restartable.
 //

@@ -284,7 +284,8 @@ func (p *Plan) arrayScript(f Files) string {
 	p.resources(&b)
 	b.WriteString(`# Written by areasweep. One array task runs line $SLURM_ARRAY_TASK_ID of the
 # manifest; it is skipped when its output folder holds the marker, which is
-# written last and atomically, only after the command succeeded.
+# written last and atomically, only after the command succeeded (keeping the
+# lines of a marker the command wrote itself).
 set -euo pipefail
 `)
 	fmt.Fprintf(&b, "manifest=%s\n", Quote(f.Manifest))
@@ -297,17 +298,35 @@ if [ -f "$out/$marker" ]; then
   echo "areasweep task $k ($study $shard): already finished, skipped"
   exit 0
 fi
-mkdir -p "$out"
+created=0
+[ -d "$out" ] || { mkdir -p "$out"; created=1; }
 export AREASWEEP_STUDY="$study" AREASWEEP_SHARD="${shard%/*}" AREASWEEP_SHARDS="${shard#*/}" AREASWEEP_OUT="$out"
 echo "areasweep task $k ($study $shard): started on $(hostname) at $(date -u +%FT%TZ)"
+set +e
 (
 `)
 	b.WriteString(p.TaskCommand)
 	b.WriteString(`
 )
+rc=$?
+set -e
+if [ "$rc" -ne 0 ]; then
+  # A failed task leaves no folder it made and found empty.
+  [ "$created" = 0 ] || rmdir "$out" 2>/dev/null || true
+  echo "areasweep task $k ($study $shard): failed with status $rc"
+  exit "$rc"
+fi
 tmp="$(mktemp "$out/.$marker.XXXXXX")"
-printf 'study\t%s\nshard\t%s\nfinished\t%s\njob\t%s_%s\n' "$study" "$shard" "$(date -u +%FT%TZ)" \
-  "${SLURM_ARRAY_JOB_ID:-}" "$k" >"$tmp"
+{
+  # A marker the command wrote itself (areasweep's, with its settings
+  # checksum) is kept; the task adds when and by which job.
+  if [ -f "$out/$marker" ]; then
+    grep -v -e '^finished'$'\t' -e '^job'$'\t' "$out/$marker" || true
+  else
+    printf 'study\t%s\nshard\t%s\n' "$study" "$shard"
+  fi
+  printf 'finished\t%s\njob\t%s_%s\n' "$(date -u +%FT%TZ)" "${SLURM_ARRAY_JOB_ID:-}" "$k"
+} >"$tmp"
 sync "$tmp" 2>/dev/null || true
 mv -f "$tmp" "$out/$marker"
 echo "areasweep task $k ($study $shard): finished"
@@ -428,7 +447,11 @@ func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
-		return "", fmt.Errorf("%w: sbatch %s: %w: %s", ErrSubmit, strings.Join(args, " "), err, strings.TrimSpace(stderr.String()))
+		msg := strings.TrimSpace(stderr.String())
+		if msg == "" {
+			msg = err.Error()
+		}
+		return "", fmt.Errorf("%w: sbatch %s: %s", ErrSubmit, strings.Join(args, " "), msg)
 	}
 	// --parsable prints "JID" or "JID;CLUSTER".
 	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")

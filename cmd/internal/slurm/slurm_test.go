@@ -199,3 +199,56 @@ echo run >>"$AREASWEEP_OUT/../runs-$AREASWEEP_SHARD"
 		t.Errorf("task 9 of 4: exit %d, %s", code, out)
 	}
 }
+
+// TestArrayScriptKeepsCommandsMarker: a task whose command writes its own
+// marker (areasweep batch writes one with its settings checksum, which a
+// later run compares) keeps that marker's lines, the task adding when and
+// by which job; a failed task removes the output folder it made for the
+// command when that folder stayed empty, and keeps a folder that existed.
+func TestArrayScriptKeepsCommandsMarker(t *testing.T) {
+	dir := t.TempDir()
+	cmd := `[ "$AREASWEEP_STUDY" = s0 ] || exit 5
+printf 'settings\tabc\nstudy\t%s\n' "$AREASWEEP_STUDY" >"$AREASWEEP_OUT/` + MarkerName + `"`
+	p := testPlan(dir, 4, cmd)
+	f, err := p.Write()
+	if err != nil {
+		t.Fatal(err)
+	}
+	kept := p.Tasks[3].Out
+	if err := os.MkdirAll(kept, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	run := func(k int) (int, string) {
+		c := exec.Command("bash", f.Array)
+		c.Env = append(os.Environ(), "SLURM_ARRAY_TASK_ID="+strconv.Itoa(k), "SLURM_ARRAY_JOB_ID=77")
+		out, err := c.CombinedOutput()
+		if ee, ok := err.(*exec.ExitError); ok {
+			return ee.ExitCode(), string(out)
+		} else if err != nil {
+			t.Fatal(err)
+		}
+		return 0, string(out)
+	}
+	if code, out := run(1); code != 0 {
+		t.Fatalf("task 1: exit %d: %s", code, out)
+	}
+	b, err := os.ReadFile(filepath.Join(p.Tasks[0].Out, MarkerName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := string(b)
+	if !strings.HasPrefix(m, "settings\tabc\nstudy\ts0\nfinished\t") || !strings.HasSuffix(m, "\njob\t77_1\n") {
+		t.Errorf("marker:\n%s", m)
+	}
+	for k := 3; k <= 4; k++ {
+		if code, out := run(k); code != 5 || !strings.Contains(out, "failed with status 5") {
+			t.Fatalf("task %d: exit %d, want 5: %s", k, code, out)
+		}
+	}
+	if _, err := os.Stat(p.Tasks[2].Out); !os.IsNotExist(err) {
+		t.Errorf("the failed task left the folder it made: %v", err)
+	}
+	if _, err := os.Stat(kept); err != nil {
+		t.Errorf("the failed task removed a folder that existed before it: %v", err)
+	}
+}
