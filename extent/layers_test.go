@@ -193,3 +193,40 @@ func TestLatin1UnitIDs(t *testing.T) {
 		t.Errorf("ids %q, want Zoë and Zoé", ids)
 	}
 }
+
+// TestUnreadablePolygonFileAdvice: a polygon file GDAL cannot open is
+// refused with what to do; GDAL's advice for an open ring (an option to
+// accept it, with its name missing) is not passed on.
+func TestUnreadablePolygonFileAdvice(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	garbage := filepath.Join(dir, "region.gpkg")
+	os.WriteFile(garbage, []byte("garbage\x00\x01 not a vector"), 0o644)
+	open := filepath.Join(dir, "open.geojson")
+	os.WriteFile(open, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.5,0.5],[3,0.5],[3,3],[0.5,3]]]}}]}`), 0o644)
+	for _, tc := range []struct {
+		path    string
+		want    []string
+		notWant []string
+	}{
+		{garbage, []string{"region.gpkg is not a vector file GDAL can read", "give a GeoPackage, shapefile", "opens in a GIS"}, nil},
+		{open, []string{"open.geojson is not a vector file GDAL can read (a polygon's ring does not end at its first point)", "close each ring"},
+			[]string{"configuration option", "Non closed"}},
+	} {
+		_, _, err := ReadShape(tc.path, g)
+		if err == nil {
+			t.Fatalf("%s: read", tc.path)
+		}
+		for _, w := range tc.want {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s: %q lacks %q", filepath.Base(tc.path), err, w)
+			}
+		}
+		for _, w := range tc.notWant {
+			if strings.Contains(err.Error(), w) {
+				t.Errorf("%s: %q has %q", filepath.Base(tc.path), err, w)
+			}
+		}
+	}
+}

@@ -60,6 +60,19 @@ func ReadShape(path string, g *Grid) (Shape, []string, error) {
 	return s, warns, nil
 }
 
+// vectorAdvice says what to do about a polygon file GDAL could not open,
+// from GDAL's cause: a ring left open is closed, a file in no format GDAL
+// knows (or cut short) is checked or exported again.
+func vectorAdvice(cause string) string {
+	switch {
+	case strings.Contains(cause, "Non closed ring"):
+		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
+	case strings.Contains(cause, "not recognized as a supported file format"):
+		return "; give a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons, and check that it opens in a GIS (a file cut short or renamed from another format does not)"
+	}
+	return "; check that the file opens in a GIS, or export it again as a GeoPackage"
+}
+
 // ReadUnits reads the polygon features of the first layer of path grouped
 // by the value of field, each group unioned, in the order ids first appear.
 func ReadUnits(path, field string, g *Grid) ([]Unit, []string, error) {
@@ -78,7 +91,16 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			r.Close()
 			return nil, nil, fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
 		}
-		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, gdalmsg.Cause(err.Error()), hint)
+		cause := gdalmsg.Cause(err.Error())
+		if hint == "" {
+			hint = vectorAdvice(cause)
+		}
+		if strings.Contains(cause, "Non closed ring") {
+			// GDAL's own advice names no option and would accept the
+			// broken ring: say what is wrong instead.
+			cause = "a polygon's ring does not end at its first point"
+		}
+		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, cause, hint)
 	}
 	defer ds.Close()
 	layers := ds.Layers()
