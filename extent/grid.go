@@ -113,7 +113,7 @@ func OpenGrid(path string) (*Grid, error) {
 	Register()
 	ds, err := OpenRaster(path)
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s)", path, gdalmsg.Cause(err.Error()))
+		return nil, fmt.Errorf("extent: %s is not a raster GDAL can read (%s); give a GeoTIFF (or another raster GDAL reads: ASCII grid, ERDAS .img, ...) and check that it opens in a GIS (a file cut short or renamed from another format does not)", path, gdalmsg.Cause(err.Error()))
 	}
 	defer ds.Close()
 	if len(ds.Bands()) == 0 {

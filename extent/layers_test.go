@@ -230,3 +230,38 @@ func TestUnreadablePolygonFileAdvice(t *testing.T) {
 		}
 	}
 }
+
+// TestWrongKindOfFileAdvice: a table without geometry given as polygons
+// is named as a table (it had been refused for lacking a CRS, which
+// defining one would not fix); an ecoregion field asked of a layer with no
+// fields says so instead of listing nothing; a file that is no raster
+// says what to give.
+func TestWrongKindOfFileAdvice(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	table := filepath.Join(dir, "points.csv")
+	os.WriteFile(table, []byte("lon,lat\n1,2\n2,3\n"), 0o644)
+	bare := filepath.Join(dir, "bare.geojson")
+	os.WriteFile(bare, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.5,0.5],[3,0.5],[3,3],[0.5,3],[0.5,0.5]]]}}]}`), 0o644)
+	notRaster := filepath.Join(dir, "model.tif")
+	os.WriteFile(notRaster, []byte("not a raster"), 0o644)
+	check := func(what string, err error, want, notWant string) {
+		t.Helper()
+		if err == nil {
+			t.Fatalf("%s: no error", what)
+		}
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("%s: %q lacks %q", what, err, want)
+		}
+		if notWant != "" && strings.Contains(err.Error(), notWant) {
+			t.Errorf("%s: %q has %q", what, err, notWant)
+		}
+	}
+	_, _, err := ReadShape(table, g)
+	check("table", err, "has no geometry (a table, not polygons)", "no CRS")
+	_, _, err = ReadUnits(bare, "ECO", g)
+	check("no fields", err, `has no field "ECO": its features have no attribute fields at all`, "fields are:")
+	_, err = OpenGrid(notRaster)
+	check("not a raster", err, "give a GeoTIFF", "")
+}

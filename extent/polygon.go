@@ -133,6 +133,11 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		warns = append(warns, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
 			path, len(layers), strings.Join(names, ", "), which, layer.Name(), path))
 	}
+	if layer.Type() == godal.GTNone {
+		// A table without geometry (a CSV of points, say): it has no
+		// polygons and no CRS, and the CRS refusal would mislead.
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no geometry (a table, not polygons); give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path, layer.Name())
+	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
@@ -201,6 +206,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				}
 				sort.Strings(names)
 				f.Close()
+				if len(names) == 0 {
+					return nil, warns, fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
+				}
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 			}
 			id = v.String()
