@@ -173,6 +173,9 @@ type evalScratch struct {
 	spanSet   bool
 	spanLo    uint64
 	spanScale float64
+	// The partial ROC areas per E and their scratch.
+	partial []partialResult
+	area    areaScratch
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -342,8 +345,10 @@ func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch
 		return
 	}
 	rf := float64(r)
-	for i, ev := range e.es {
-		pr := e.p.partialArea(groups, r, ev)
+	prs := grow(sc.partial, len(e.es))
+	sc.partial = prs
+	e.p.partialAreas(groups, r, e.es, prs, &sc.area)
+	for i, pr := range prs {
 		if pr.how == crossFormed {
 			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
 		}
@@ -486,17 +491,20 @@ func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 // their bit patterns, which order as the values do: zp are the positions
 // of the zeros, sk the positive values' bits ascending and sp their
 // positions, all in sc's scratch slices. A bucket sort puts the positive
-// values in order (bucket b of nb holds the bits k with floor((k - lo) s)
-// = b, clamped to [0, nb-1], a non-decreasing function of k, so the
+// values in order (bucket b of nb = 3n holds the bits k with floor((k -
+// lo) s) = b, clamped to [0, nb-1], a non-decreasing function of k, so the
 // buckets are in order) and an insertion sort puts each bucket in order (a
-// few values each). lo and s come from the previous call's values (sc
-// keeps them; the first call looks at its own first): ratios of one
-// evaluator's resamples span much the same range, and a bucket function
-// that fits less well only leaves more to the insertion sort. The order
-// depends only on the values, whatever the buckets.
+// value or two each: three buckets per value leave a quarter as many
+// values sharing a bucket as one per value does, and the insertion sort's
+// unpredictable branches were most of the cost). lo and s come from the
+// previous call's smallest and largest positive values (sc keeps them; the
+// first call looks at its own): ratios of one evaluator's resamples span
+// much the same range, and a bucket function that fits less well only
+// leaves more to the insertion sort. The order depends only on the
+// values, whatever the buckets.
 func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []int32, ok bool) {
 	n := len(v)
-	nb := max(n, 1)
+	nb := max(3*n, 1)
 	if !sc.spanSet {
 		lo, hi := uint64(math.MaxUint64), uint64(0)
 		for _, x := range v {
@@ -513,7 +521,6 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 	// keys, pos and bucket, in the order of v; the zeros' positions at the
 	// back of pos.
 	m, z := 0, n
-	lo, hi := uint64(math.MaxUint64), uint64(0)
 	base, scale, top := sc.spanLo, sc.spanScale, float64(nb-1)
 	for i, x := range v {
 		k := math.Float64bits(x)
@@ -535,11 +542,10 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 		keys[m], pos[m], bucket[m] = k, int32(i), b
 		start[b+1]++
 		m++
-		lo, hi = min(lo, k), max(hi, k)
 	}
-	sc.setSpan(lo, hi, nb)
 	zp = pos[z:]
 	if m == 0 {
+		sc.setSpan(math.MaxUint64, 0, nb)
 		return zp, nil, nil, true
 	}
 	acc := int32(0)
@@ -567,6 +573,7 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 		}
 		sk[j], sp[j] = k, p
 	}
+	sc.setSpan(sk[0], sk[m-1], nb)
 	return zp, sk, sp, true
 }
 
