@@ -93,9 +93,128 @@ type Evaluator struct {
 	// maxExactWindows windows, so the Spearman sums are exact in float64
 	// (boyceRho).
 	exactRho bool
+	// all is the group set of every presence (every group, in order).
+	all *groupSet
 	// own is the memo of ownResamples: the scores on each resample of
 	// one Draws with all of the evaluator's presences.
 	own ownMemo
+}
+
+// groupSet lays out the resamples of a subset of an evaluator's presences
+// (all of them, or those a comparison has in common): the groups that
+// hold some presence of the subset, in the evaluator's order (descending
+// value), renumbered 0, 1, ... Every score but the AUCs depends on a
+// multiset of presences only through its count per group, and a group
+// holding none of the subset has count 0 in every resample, which no
+// score sees (partialAreas skips empty groups, and the omission rates and
+// the Boyce index read the presences before a group, which such a group
+// leaves as they are), so leaving those groups out gives the same
+// operations on the same numbers.
+type groupSet struct {
+	// p holds the kept groups' areas (xgt, xge) and their count in the
+	// evaluator's whole set (count, for partialArea's rule on ties).
+	p *presences
+	// ids are the global indices of the subset's presences, by kept
+	// group; of[j] is the kept group of ids[j], nil when each kept group
+	// holds exactly one (then of[j] = j).
+	ids []int
+	of  []int32
+	// cut[t] is the first kept group below threshold t; winGroups[w] the
+	// kept groups window w holds (as in Evaluator).
+	cut       []int
+	winGroups [][2]int32
+}
+
+// groupSet returns the group set of the presences at positions keep of
+// e.ids (ascending).
+func (e *Evaluator) groupSet(keep []int) *groupSet {
+	nG := len(e.p.j)
+	// inSet[g]: presences of the subset in group g.
+	inSet := make([]int32, nG)
+	for _, k := range keep {
+		inSet[e.group[k]]++
+	}
+	// kBefore[g]: kept groups before group g.
+	kBefore := make([]int, nG+1)
+	gs := &groupSet{p: &presences{}}
+	for g, c := range inSet {
+		kBefore[g+1] = kBefore[g]
+		if c > 0 {
+			kBefore[g+1]++
+			gs.p.xgt = append(gs.p.xgt, e.p.xgt[g])
+			gs.p.xge = append(gs.p.xge, e.p.xge[g])
+			gs.p.count = append(gs.p.count, e.p.count[g])
+		}
+	}
+	// The subset's ids by group: a counting sort on the groups.
+	pos := make([]int32, nG+1)
+	for g, c := range inSet {
+		pos[g+1] = pos[g] + c
+	}
+	gs.ids = make([]int, len(keep))
+	for _, k := range keep {
+		g := e.group[k]
+		gs.ids[pos[g]] = e.ids[k]
+		pos[g]++
+	}
+	if len(gs.ids) > len(gs.p.xge) { // some kept group holds several
+		gs.of = make([]int32, 0, len(gs.ids))
+		for g, c := range inSet {
+			for range c {
+				gs.of = append(gs.of, int32(kBefore[g]))
+			}
+		}
+	}
+	gs.cut = make([]int, len(e.cut))
+	for t, c := range e.cut {
+		gs.cut[t] = kBefore[c]
+	}
+	gs.winGroups = make([][2]int32, len(e.winGroups))
+	for w, span := range e.winGroups {
+		gs.winGroups[w] = [2]int32{int32(kBefore[span[0]]), int32(kBefore[span[1]])}
+	}
+	return gs
+}
+
+// gather sets groups[g] to the copies drawn in resample b of the presences
+// of kept group g and before[g] to those of kept groups 0..g-1 (before[G]
+// to all of them, for G kept groups), and returns their total: one walk
+// over the set's presences in group order (and one over the groups when
+// some hold several presences).
+func (gs *groupSet) gather(rs *resampler, b int, groups, before []int) int {
+	if rs.tab != nil {
+		return gatherCounts(rs.tab.row(b), gs.ids, gs.of, groups, before)
+	}
+	rs.draw(b)
+	return gatherCounts(rs.global, gs.ids, gs.of, groups, before)
+}
+
+// gatherCounts is groupSet.gather on the counts of one resample, by
+// global index.
+func gatherCounts[T uint8 | int32](row []T, ids []int, of []int32, groups, before []int) int {
+	before = before[:len(groups)+1]
+	acc := 0
+	if of == nil {
+		ids = ids[:len(groups)]
+		for g, id := range ids {
+			c := int(row[id])
+			groups[g] = c
+			before[g] = acc
+			acc += c
+		}
+	} else {
+		clear(groups)
+		of = of[:len(ids)]
+		for j, id := range ids {
+			groups[of[j]] += int(row[id])
+		}
+		for g, c := range groups {
+			before[g] = acc
+			acc += c
+		}
+	}
+	before[len(groups)] = acc
+	return acc
 }
 
 // useOwnMemo is false only in the test that checks the memo against
@@ -140,11 +259,12 @@ func (e *Evaluator) ownResamples(d Draws) *ownMemo {
 	m.boyce, m.boyceOK, m.n = make([]float64, d.B), make([]bool, d.B), make([]int, d.B)
 	rs := newResampler(d)
 	m.tab = rs.tab
-	groups := make([]int, len(e.p.j))
+	gs := e.all
+	groups, before := make([]int, len(gs.p.xge)), make([]int, len(gs.p.xge)+1)
 	var v Values
 	var sc evalScratch
 	for r := 0; r < d.B; r++ {
-		e.evalGroups(groups, rs.groups(r, e.ids, e.group, groups), &v, &sc)
+		e.evalGroups(gs, groups, before, gs.gather(rs, r, groups, before), &v, &sc)
 		copy(m.ratio[r*nE:], v.Ratio)
 		copy(m.ok[r*nE:], v.RatioOK)
 		copy(m.om[r*nT:], v.Omission)
@@ -255,6 +375,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.winGroups[w] = [2]int32{int32(lo), int32(g)}
 	}
+	all := make([]int, n)
+	for k := range all {
+		all[k] = k
+	}
+	e.all = e.groupSet(all)
 	mid := make([]float64, len(e.win))
 	for w, bw := range e.win {
 		mid[w] = bw.mid
@@ -314,7 +439,7 @@ func (e *Evaluator) eval(count []int32) Values {
 }
 
 // evalInto scores the multiset with count[k] copies of a presence of
-// group group[k] (evalGroups).
+// group group[k] (evalGroups on every group).
 func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalScratch) {
 	groups := resize(sc.groups, len(e.p.j))
 	sc.groups = groups
@@ -323,22 +448,31 @@ func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalSc
 		r += int(c)
 		groups[group[k]] += int(c)
 	}
-	e.evalGroups(groups, r, out, sc)
+	before := grow(sc.before, len(groups)+1)
+	sc.before = before
+	acc := 0
+	for g, c := range groups {
+		before[g] = acc
+		acc += c
+	}
+	before[len(groups)] = acc
+	e.evalGroups(e.all, groups, before, r, out, sc)
 }
 
-// evalGroups scores the multiset with groups[g] presences of group g, r
-// in all, all but the AUCs (left as they are: the resamples of Compare do
-// not use them), writing into out (its slices reused when long enough)
-// with scratch memory sc. Every score but the AUCs depends on the
-// presences only through their groups (their values): the partial ROC
-// ratios by partialArea, the omission rates through the presences of the
-// groups below each threshold, the Boyce index through those of the
-// groups each window holds. The counts are integers, so adding them up by
-// group gives exactly what adding them up by presence does.
-func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch) {
+// evalGroups scores the multiset with groups[g] presences of kept group
+// g of gs, before[g] in the kept groups before g (before[G] = r in all),
+// all but the AUCs (left as they are: the resamples of Compare do not use
+// them), writing into out (its slices reused when long enough) with
+// scratch memory sc. Every score but the AUCs depends on the presences
+// only through their groups (their values): the partial ROC ratios by
+// partialAreas, the omission rates through the presences of the groups
+// below each threshold, the Boyce index through those of the groups each
+// window holds. The counts are integers, so adding them up by group gives
+// exactly what adding them up by presence does.
+func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *Values, sc *evalScratch) {
 	out.Ratio = resize(out.Ratio, len(e.es))
 	out.RatioOK = resize(out.RatioOK, len(e.es))
-	out.Omission = resize(out.Omission, len(e.cut))
+	out.Omission = resize(out.Omission, len(gs.cut))
 	out.Boyce, out.BoyceOK = 0, false
 	out.N = r
 	if r == 0 {
@@ -347,29 +481,20 @@ func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch
 	rf := float64(r)
 	prs := grow(sc.partial, len(e.es))
 	sc.partial = prs
-	e.p.partialAreas(groups, r, e.es, prs, &sc.area)
+	gs.p.partialAreas(groups, r, e.es, prs, &sc.area)
 	for i, pr := range prs {
 		if pr.how == crossFormed {
 			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
 		}
 	}
-	// before[g]: the presences of the groups before g.
-	before := grow(sc.before, len(groups)+1)
-	sc.before = before
-	before[0] = 0
-	acc, after := 0, before[1:len(groups)+1]
-	for g, c := range groups {
-		acc += c
-		after[g] = acc
-	}
-	for t, cut := range e.cut {
+	for t, cut := range gs.cut {
 		out.Omission[t] = float64(r-before[cut]) / rf
 	}
 	if len(e.win) >= 3 {
 		ratio := resize(sc.ratio, len(e.win))
 		sc.ratio = ratio
 		win := e.win[:len(ratio)]
-		for w, span := range e.winGroups[:len(ratio)] {
+		for w, span := range gs.winGroups[:len(ratio)] {
 			run := before[span[1]] - before[span[0]]
 			ratio[w] = (float64(run) / rf) / win[w].share
 		}
@@ -790,29 +915,34 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		if len(pb) == len(b.ids) && useOwnMemo {
 			mb = b.ownResamples(d)
 		}
+		// The other side's scores come from its presences in common:
+		// their group sets, and the counts and sums per kept group.
 		var rs *resampler
-		common := make([]int, len(pa))
-		ga, gb := make([]int, len(pa)), make([]int, len(pa))
+		var gsa, gsb *groupSet
+		var groupsA, beforeA, groupsB, beforeB []int
+		if ma == nil {
+			gsa = a.groupSet(pa)
+			groupsA, beforeA = make([]int, len(gsa.p.xge)), make([]int, len(gsa.p.xge)+1)
+		}
+		if mb == nil {
+			gsb = b.groupSet(pb)
+			groupsB, beforeB = make([]int, len(gsb.p.xge)), make([]int, len(gsb.p.xge)+1)
+		}
 		if ma == nil || mb == nil {
 			rs = newResampler(d)
-			for k := range pa {
-				common[k] = a.ids[pa[k]]
-				ga[k], gb[k] = a.group[pa[k]], b.group[pb[k]]
-			}
 		}
-		groupsA, groupsB := make([]int, len(a.p.j)), make([]int, len(b.p.j))
 		var ra, rb Values
 		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
 			if ma != nil {
 				ma.load(r, nE, nT, &ra)
 			} else {
-				a.evalGroups(groupsA, rs.groups(r, common, ga, groupsA), &ra, &sa)
+				a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa)
 			}
 			if mb != nil {
 				mb.load(r, nE, nT, &rb)
 			} else {
-				b.evalGroups(groupsB, rs.groups(r, common, gb, groupsB), &rb, &sb)
+				b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
 			}
 			for i := 0; i < nE; i++ {
 				if ra.RatioOK[i] && rb.RatioOK[i] {
