@@ -766,7 +766,32 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 	e.own.mu.Unlock()
 	c := make([]int32, len(e.ids))
 	aucs := make([]float64, 0, d.B)
-	for b := 0; b < d.B; b++ {
+	b := 0
+	if rs.tab != nil {
+		// Four resamples at a time, each summed in its own order as
+		// below: the four sums are independent, so the processor adds
+		// them side by side instead of waiting on one sum's additions.
+		v := e.v[:len(e.ids)]
+		for ; b+4 <= d.B; b += 4 {
+			row0, row1, row2, row3 := rs.tab.row(b), rs.tab.row(b+1), rs.tab.row(b+2), rs.tab.row(b+3)
+			var r0, r1, r2, r3 int
+			var s0, s1, s2, s3 float64
+			for k, id := range e.ids {
+				c0, c1, c2, c3 := row0[id], row1[id], row2[id], row3[id]
+				r0, r1, r2, r3 = r0+int(c0), r1+int(c1), r2+int(c2), r3+int(c3)
+				s0 += float64(c0) * v[k]
+				s1 += float64(c1) * v[k]
+				s2 += float64(c2) * v[k]
+				s3 += float64(c3) * v[k]
+			}
+			for i, r := range [4]int{r0, r1, r2, r3} {
+				if r > 0 {
+					aucs = append(aucs, [4]float64{s0, s1, s2, s3}[i]/float64(r))
+				}
+			}
+		}
+	}
+	for ; b < d.B; b++ {
 		// The AUC of eval: the mean placement over the drawn copies,
 		// summed in the same order. eval skips the presences not drawn;
 		// adding their 0 x placement (+0: placements are finite and >= 0)
