@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sort"
 	"sync"
 )
 
@@ -305,6 +306,12 @@ type evalScratch struct {
 // resampled (for example the Values of Scores.Thresholds); each must be a
 // layout value. s supplies E, BoyceWidth and BoyceSteps.
 func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float64, s Settings) (*Evaluator, error) {
+	return newEvaluator(a, test, ids, thresholds, s, nil)
+}
+
+// newEvaluator is NewEvaluator, taking what Score computed for the same
+// accumulator, test values and settings from parts when not nil.
+func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float64, s Settings, parts *scored) (*Evaluator, error) {
 	if a == nil {
 		return nil, errors.New("metrics: NewEvaluator: nil accumulator")
 	}
@@ -319,8 +326,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		return nil, errors.New("metrics: NewEvaluator: the extent cannot be scored (no background, no test presences or constant suitability)")
 	}
 	l := a.layout
-	idx, err := layoutIndices(l, test, "test presence")
-	if err != nil {
+	var idx []int
+	var err error
+	if parts != nil {
+		idx = parts.testIdx
+	} else if idx, err = layoutIndices(l, test, "test presence"); err != nil {
 		return nil, err
 	}
 	thIdx, err := layoutIndices(l, thresholds, "threshold")
@@ -342,17 +352,21 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 			return nil, fmt.Errorf("metrics: NewEvaluator: global index %d appears twice", e.ids[k])
 		}
 	}
-	c := newCumulative(a)
+	var c *cumulative
+	if parts != nil {
+		// Score's presences: the same groups (newPresences depends on the
+		// multiset of indices alone).
+		c, e.p = parts.cum, parts.tp
+	} else {
+		c = newCumulative(a)
+		e.p = newPresences(c, sIdx)
+	}
 	e.v = c.placements(sIdx, false)
 	e.vu = c.placements(sIdx, true)
-	e.p = newPresences(c, sIdx)
-	gOf := map[int]int{}
-	for g, j := range e.p.j {
-		gOf[j] = g
-	}
+	// The group of each presence: the groups' layout indices descend.
 	e.group = make([]int, n)
 	for k, j := range sIdx {
-		e.group[k] = gOf[j]
+		e.group[k] = sort.Search(len(e.p.j), func(g int) bool { return e.p.j[g] <= j })
 	}
 	e.th = thIdx
 	for _, tj := range thIdx {
@@ -362,7 +376,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.cut = append(e.cut, cut)
 	}
-	e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	if parts != nil {
+		e.win = parts.win
+	} else {
+		e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	}
 	e.winGroups = make([][2]int32, len(e.win))
 	for w, bw := range e.win {
 		g := 0

@@ -403,3 +403,52 @@ func TestCompareMatchesReference(t *testing.T) {
 		t.Errorf("ties %v, groups left out with ties kept %v: the test does not cover both", ties, kept)
 	}
 }
+
+// TestScoreEvaluator: ScoreEvaluator gives Score's scores and the
+// evaluator NewEvaluator makes from them (every field, down to the
+// groups and Boyce windows), on cases with ties and fixed thresholds,
+// and no evaluator on an extent that is not scored.
+func TestScoreEvaluator(t *testing.T) {
+	r := rand.New(rand.NewPCG(71, 72))
+	for trial := 0; trial < 40; trial++ {
+		c := randomCase(r, 50+r.IntN(300), 5+r.IntN(60), 3+r.IntN(20), 1+r.IntN(60))
+		fixed := []float64{c.test[0]}
+		_, a := build(t, c, fixed, 64)
+		ids := r.Perm(len(c.test) + 10)[:len(c.test)]
+		s := Settings{E: []float64{0.05, 0.2}, Iterations: 50, Seed: uint64(trial), FixedThresholds: fixed, BoyceSteps: 10 + r.IntN(50)}
+		want, err := Score(a, c.train, c.test, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, ev, err := ScoreEvaluator(a, c.train, c.test, ids, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(got, want) {
+			t.Fatalf("trial %d: ScoreEvaluator's scores differ from Score's", trial)
+		}
+		if !want.Scored {
+			if ev != nil {
+				t.Errorf("trial %d: an evaluator on an extent not scored", trial)
+			}
+			continue
+		}
+		ths := make([]float64, len(want.Thresholds))
+		for i, th := range want.Thresholds {
+			ths[i] = th.Value
+		}
+		wantEv, err := NewEvaluator(a, c.test, ids, ths, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(ev, wantEv) {
+			t.Fatalf("trial %d: ScoreEvaluator's evaluator differs from NewEvaluator's", trial)
+		}
+	}
+	var empty testCase
+	empty.test = []float64{1}
+	_, a := build(t, empty, nil, 16)
+	if sc, ev, err := ScoreEvaluator(a, nil, empty.test, []int{0}, Settings{}); err != nil || sc.Scored || ev != nil {
+		t.Errorf("empty extent: scored %v, evaluator %v, err %v", sc.Scored, ev, err)
+	}
+}

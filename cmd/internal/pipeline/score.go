@@ -205,7 +205,10 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	train, test := in.values(k, vocab.RoleTrain), in.values(k, vocab.RoleTest)
 	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
 	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
-	out, err := metrics.Score(acc, train, test, set)
+	// The scores, and the evaluator of the paired comparisons (on the
+	// values of the scores' thresholds) from what the scoring computed.
+	global, ids := in.testIDs(k)
+	out, ev, err := metrics.ScoreEvaluator(acc, train, test, global, set)
 	if err != nil {
 		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
 	}
@@ -213,13 +216,8 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	if !sc.Scored {
 		return extentScore{sc: sc}, nil
 	}
-	global, ids := in.testIDs(k)
 	sc.TestPointIDs = ids
-	ev, sd, err := s.evaluator(acc, test, global, out, set)
-	if err != nil {
-		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
-	}
-	sc.AUCBootSD = sd
+	sc.AUCBootSD, _ = ev.BootSD(s.draws())
 	return extentScore{sc: sc, ev: ev, curve: report.NewCurve(model, mem.ID, out.Curve)}, nil
 }
 
