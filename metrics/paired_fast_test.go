@@ -245,7 +245,7 @@ func ranksOf(v []float64) []float64 {
 // BenchmarkAverageRanks times the ranks of the Boyce index's 100 window
 // ratios, taken from resamples of an evaluator of BenchmarkPairedRun.
 func BenchmarkAverageRanks(b *testing.B) {
-	pr := newPairedRun(b, 1, 1, 500)
+	pr := newPairedRun(b, 1, 1, 500, false)
 	ev := pr.evals[0][0]
 	rs := newResampler(pr.d)
 	c := make([]int32, len(ev.ids))
