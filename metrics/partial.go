@@ -146,9 +146,8 @@ func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
 type areaScratch struct {
 	nz    []int32   // the groups with presences after the first crossing
 	cross []int     // per E: the crossing group (-1: none)
-	ya    []int     // per E: the presences up to the crossing group
+	ya    []int     // per E: the presences of the groups up to the crossing, its own included
 	model []float64 // per E: the model area summed so far
-	tau   []float64 // per E: (1 - E) r
 }
 
 // partialAreas sets res[i] to the partial ROC areas of the curve of counts
@@ -176,8 +175,8 @@ func (p *presences) partialAreas(counts []int, r int, es []float64, res []partia
 	}
 	nE := len(es)
 	crossOf, yaOf := resize(sc.cross, nE), resize(sc.ya, nE)
-	model, tauOf := resize(sc.model, nE), resize(sc.tau, nE)
-	sc.cross, sc.ya, sc.model, sc.tau = crossOf, yaOf, model, tauOf
+	model := resize(sc.model, nE)
+	sc.cross, sc.ya, sc.model = crossOf, yaOf, model
 	first := last + 1
 	for i, e := range es {
 		tau := snapCount((1 - e) * rf)
@@ -205,7 +204,7 @@ func (p *presences) partialAreas(counts []int, r int, es []float64, res []partia
 			cross, ya = g, yb-counts[g]
 		}
 		res[i] = partialResult{}
-		crossOf[i], tauOf[i] = cross, tau
+		crossOf[i] = cross
 		if cross < 0 {
 			continue
 		}
