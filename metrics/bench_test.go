@@ -273,8 +273,10 @@ type pairedRun struct {
 
 // newPairedRun builds the evaluators of models x extents: extent k holds
 // the presences and cells whose uniform tag lies below its share (from
-// 0.25 to 1), the base extent is the one nearest 0.7.
-func newPairedRun(b *testing.B, models, extents, presences int) *pairedRun {
+// 0.25 to 1), the base extent is the one nearest 0.7. The presences'
+// values are rounded to 1/2000 (some ties), or left as drawn when
+// continuous (no ties, as on a Float32 raster).
+func newPairedRun(b *testing.B, models, extents, presences int, continuous bool) *pairedRun {
 	r := rand.New(rand.NewPCG(7, 7))
 	ptag := make([]float64, presences)
 	for i := range ptag {
@@ -290,7 +292,10 @@ func newPairedRun(b *testing.B, models, extents, presences int) *pairedRun {
 	for m := 0; m < models; m++ {
 		test := make([]float64, presences)
 		for i := range test {
-			test[i] = math.Round((1-r.Float64()*r.Float64())*2000) / 2000 // some ties
+			test[i] = 1 - r.Float64()*r.Float64()
+			if !continuous {
+				test[i] = math.Round(test[i]*2000) / 2000 // some ties
+			}
 		}
 		l, err := NewLayout(test, 1024)
 		if err != nil {
@@ -365,12 +370,20 @@ func (pr *pairedRun) run(b *testing.B) {
 // BenchmarkPairedRun times a run's paired analysis (every comparison, the
 // memos of resampled scores and every BootSD) with 500 test presences, B
 // = 1000, three models (the last one standing for the null) by the number
-// of extents; cpu-ns/op is the thread's CPU time (one goroutine), immune
-// to time-slicing by other processes.
+// of extents, with some ties among the presences' values, and at 60
+// extents without ties too (continuous); cpu-ns/op is the thread's CPU
+// time (one goroutine), immune to time-slicing by other processes.
 func BenchmarkPairedRun(b *testing.B) {
-	for _, extents := range []int{20, 60} {
-		b.Run(fmt.Sprintf("extents=%d", extents), func(b *testing.B) {
-			pr := newPairedRun(b, 3, extents, 500)
+	for _, c := range []struct {
+		extents    int
+		continuous bool
+	}{{20, false}, {60, false}, {60, true}} {
+		name := fmt.Sprintf("extents=%d", c.extents)
+		if c.continuous {
+			name += "/continuous"
+		}
+		b.Run(name, func(b *testing.B) {
+			pr := newPairedRun(b, 3, c.extents, 500, c.continuous)
 			b.ReportAllocs()
 			stop := startCPU(b)
 			for i := 0; i < b.N; i++ {

@@ -194,11 +194,12 @@ func pointArea(pv []float64, pcum []int64, lo, hi float64) float64 {
 	return float64(pcum[j] - pcum[i])
 }
 
-// boyce computes the continuous Boyce index; sortedTest is ascending.
-func boyce(a *Accumulator, sortedTest []float64, width float64, steps int) Boyce {
+// boyce computes the continuous Boyce index on the used windows win of
+// an extent (boyceWindows) of steps windows; sortedTest is ascending.
+func boyce(win []boyceWindow, steps int, sortedTest []float64) Boyce {
 	b := Boyce{Windows: steps}
 	n := float64(len(sortedTest))
-	for _, w := range boyceWindows(a, width, steps) {
+	for _, w := range win {
 		c := sort.SearchFloat64s(sortedTest, math.Nextafter(w.hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, w.lo)
 		b.Mid = append(b.Mid, w.mid)
 		b.Ratio = append(b.Ratio, (float64(c)/n)/w.share)

@@ -56,7 +56,8 @@
 // standard error of their mean, and Scores.AUCUnweightedVarDeLong DeLong's
 // full variance for readers who treat cells as a sample. For comparisons,
 // NewEvaluator keeps one model x extent's test presences with their global
-// indices, and Compare gives paired differences on the presences two
+// indices (ScoreEvaluator makes it beside the scores, from what Score
+// computed), and Compare gives paired differences on the presences two
 // evaluators share: from the placements for the AUCs (PairedPlacements),
 // and from one set of full-size resamples (Draws, the same index sets for
 // every model and extent) for partial ROC, omission and Boyce.

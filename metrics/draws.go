@@ -185,27 +185,3 @@ func (rs *resampler) gather(b int, ids []int, dst []int32) {
 		dst[k] = rs.global[id]
 	}
 }
-
-// groups sets groups[g] to the number of copies drawn in resample b of
-// the test presences ids[k] with group[k] = g, and returns their total.
-func (rs *resampler) groups(b int, ids, group []int, groups []int) int {
-	clear(groups)
-	r := 0
-	group = group[:len(ids)]
-	if rs.tab != nil {
-		row := rs.tab.row(b)
-		for k, id := range ids {
-			c := int(row[id])
-			r += c
-			groups[group[k]] += c
-		}
-		return r
-	}
-	rs.draw(b)
-	for k, id := range ids {
-		c := int(rs.global[id])
-		r += c
-		groups[group[k]] += c
-	}
-	return r
-}

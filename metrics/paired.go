@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sort"
 	"sync"
 )
 
@@ -93,9 +94,128 @@ type Evaluator struct {
 	// maxExactWindows windows, so the Spearman sums are exact in float64
 	// (boyceRho).
 	exactRho bool
+	// all is the group set of every presence (every group, in order).
+	all *groupSet
 	// own is the memo of ownResamples: the scores on each resample of
 	// one Draws with all of the evaluator's presences.
 	own ownMemo
+}
+
+// groupSet lays out the resamples of a subset of an evaluator's presences
+// (all of them, or those a comparison has in common): the groups that
+// hold some presence of the subset, in the evaluator's order (descending
+// value), renumbered 0, 1, ... Every score but the AUCs depends on a
+// multiset of presences only through its count per group, and a group
+// holding none of the subset has count 0 in every resample, which no
+// score sees (partialAreas skips empty groups, and the omission rates and
+// the Boyce index read the presences before a group, which such a group
+// leaves as they are), so leaving those groups out gives the same
+// operations on the same numbers.
+type groupSet struct {
+	// p holds the kept groups' areas (xgt, xge) and their count in the
+	// evaluator's whole set (count, for partialArea's rule on ties).
+	p *presences
+	// ids are the global indices of the subset's presences, by kept
+	// group; of[j] is the kept group of ids[j], nil when each kept group
+	// holds exactly one (then of[j] = j).
+	ids []int
+	of  []int32
+	// cut[t] is the first kept group below threshold t; winGroups[w] the
+	// kept groups window w holds (as in Evaluator).
+	cut       []int
+	winGroups [][2]int32
+}
+
+// groupSet returns the group set of the presences at positions keep of
+// e.ids (ascending).
+func (e *Evaluator) groupSet(keep []int) *groupSet {
+	nG := len(e.p.j)
+	// inSet[g]: presences of the subset in group g.
+	inSet := make([]int32, nG)
+	for _, k := range keep {
+		inSet[e.group[k]]++
+	}
+	// kBefore[g]: kept groups before group g.
+	kBefore := make([]int, nG+1)
+	gs := &groupSet{p: &presences{}}
+	for g, c := range inSet {
+		kBefore[g+1] = kBefore[g]
+		if c > 0 {
+			kBefore[g+1]++
+			gs.p.xgt = append(gs.p.xgt, e.p.xgt[g])
+			gs.p.xge = append(gs.p.xge, e.p.xge[g])
+			gs.p.count = append(gs.p.count, e.p.count[g])
+		}
+	}
+	// The subset's ids by group: a counting sort on the groups.
+	pos := make([]int32, nG+1)
+	for g, c := range inSet {
+		pos[g+1] = pos[g] + c
+	}
+	gs.ids = make([]int, len(keep))
+	for _, k := range keep {
+		g := e.group[k]
+		gs.ids[pos[g]] = e.ids[k]
+		pos[g]++
+	}
+	if len(gs.ids) > len(gs.p.xge) { // some kept group holds several
+		gs.of = make([]int32, 0, len(gs.ids))
+		for g, c := range inSet {
+			for range c {
+				gs.of = append(gs.of, int32(kBefore[g]))
+			}
+		}
+	}
+	gs.cut = make([]int, len(e.cut))
+	for t, c := range e.cut {
+		gs.cut[t] = kBefore[c]
+	}
+	gs.winGroups = make([][2]int32, len(e.winGroups))
+	for w, span := range e.winGroups {
+		gs.winGroups[w] = [2]int32{int32(kBefore[span[0]]), int32(kBefore[span[1]])}
+	}
+	return gs
+}
+
+// gather sets groups[g] to the copies drawn in resample b of the presences
+// of kept group g and before[g] to those of kept groups 0..g-1 (before[G]
+// to all of them, for G kept groups), and returns their total: one walk
+// over the set's presences in group order (and one over the groups when
+// some hold several presences).
+func (gs *groupSet) gather(rs *resampler, b int, groups, before []int) int {
+	if rs.tab != nil {
+		return gatherCounts(rs.tab.row(b), gs.ids, gs.of, groups, before)
+	}
+	rs.draw(b)
+	return gatherCounts(rs.global, gs.ids, gs.of, groups, before)
+}
+
+// gatherCounts is groupSet.gather on the counts of one resample, by
+// global index.
+func gatherCounts[T uint8 | int32](row []T, ids []int, of []int32, groups, before []int) int {
+	before = before[:len(groups)+1]
+	acc := 0
+	if of == nil {
+		ids = ids[:len(groups)]
+		for g, id := range ids {
+			c := int(row[id])
+			groups[g] = c
+			before[g] = acc
+			acc += c
+		}
+	} else {
+		clear(groups)
+		of = of[:len(ids)]
+		for j, id := range ids {
+			groups[of[j]] += int(row[id])
+		}
+		for g, c := range groups {
+			before[g] = acc
+			acc += c
+		}
+	}
+	before[len(groups)] = acc
+	return acc
 }
 
 // useOwnMemo is false only in the test that checks the memo against
@@ -140,11 +260,12 @@ func (e *Evaluator) ownResamples(d Draws) *ownMemo {
 	m.boyce, m.boyceOK, m.n = make([]float64, d.B), make([]bool, d.B), make([]int, d.B)
 	rs := newResampler(d)
 	m.tab = rs.tab
-	groups := make([]int, len(e.p.j))
+	gs := e.all
+	groups, before := make([]int, len(gs.p.xge)), make([]int, len(gs.p.xge)+1)
 	var v Values
 	var sc evalScratch
 	for r := 0; r < d.B; r++ {
-		e.evalGroups(groups, rs.groups(r, e.ids, e.group, groups), &v, &sc)
+		e.evalGroups(gs, groups, before, gs.gather(rs, r, groups, before), &v, &sc)
 		copy(m.ratio[r*nE:], v.Ratio)
 		copy(m.ok[r*nE:], v.RatioOK)
 		copy(m.om[r*nT:], v.Omission)
@@ -173,6 +294,9 @@ type evalScratch struct {
 	spanSet   bool
 	spanLo    uint64
 	spanScale float64
+	// The partial ROC areas per E and their scratch.
+	partial []partialResult
+	area    areaScratch
 }
 
 // NewEvaluator prepares the resampled scores of one model on one extent. a
@@ -182,6 +306,12 @@ type evalScratch struct {
 // resampled (for example the Values of Scores.Thresholds); each must be a
 // layout value. s supplies E, BoyceWidth and BoyceSteps.
 func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float64, s Settings) (*Evaluator, error) {
+	return newEvaluator(a, test, ids, thresholds, s, nil)
+}
+
+// newEvaluator is NewEvaluator, taking what Score computed for the same
+// accumulator, test values and settings from parts when not nil.
+func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float64, s Settings, parts *scored) (*Evaluator, error) {
 	if a == nil {
 		return nil, errors.New("metrics: NewEvaluator: nil accumulator")
 	}
@@ -196,8 +326,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		return nil, errors.New("metrics: NewEvaluator: the extent cannot be scored (no background, no test presences or constant suitability)")
 	}
 	l := a.layout
-	idx, err := layoutIndices(l, test, "test presence")
-	if err != nil {
+	var idx []int
+	var err error
+	if parts != nil {
+		idx = parts.testIdx
+	} else if idx, err = layoutIndices(l, test, "test presence"); err != nil {
 		return nil, err
 	}
 	thIdx, err := layoutIndices(l, thresholds, "threshold")
@@ -219,17 +352,21 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 			return nil, fmt.Errorf("metrics: NewEvaluator: global index %d appears twice", e.ids[k])
 		}
 	}
-	c := newCumulative(a)
+	var c *cumulative
+	if parts != nil {
+		// Score's presences: the same groups (newPresences depends on the
+		// multiset of indices alone).
+		c, e.p = parts.cum, parts.tp
+	} else {
+		c = newCumulative(a)
+		e.p = newPresences(c, sIdx)
+	}
 	e.v = c.placements(sIdx, false)
 	e.vu = c.placements(sIdx, true)
-	e.p = newPresences(c, sIdx)
-	gOf := map[int]int{}
-	for g, j := range e.p.j {
-		gOf[j] = g
-	}
+	// The group of each presence: the groups' layout indices descend.
 	e.group = make([]int, n)
 	for k, j := range sIdx {
-		e.group[k] = gOf[j]
+		e.group[k] = sort.Search(len(e.p.j), func(g int) bool { return e.p.j[g] <= j })
 	}
 	e.th = thIdx
 	for _, tj := range thIdx {
@@ -239,7 +376,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.cut = append(e.cut, cut)
 	}
-	e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	if parts != nil {
+		e.win = parts.win
+	} else {
+		e.win = boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	}
 	e.winGroups = make([][2]int32, len(e.win))
 	for w, bw := range e.win {
 		g := 0
@@ -252,6 +393,11 @@ func NewEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.winGroups[w] = [2]int32{int32(lo), int32(g)}
 	}
+	all := make([]int, n)
+	for k := range all {
+		all[k] = k
+	}
+	e.all = e.groupSet(all)
 	mid := make([]float64, len(e.win))
 	for w, bw := range e.win {
 		mid[w] = bw.mid
@@ -311,7 +457,7 @@ func (e *Evaluator) eval(count []int32) Values {
 }
 
 // evalInto scores the multiset with count[k] copies of a presence of
-// group group[k] (evalGroups).
+// group group[k] (evalGroups on every group).
 func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalScratch) {
 	groups := resize(sc.groups, len(e.p.j))
 	sc.groups = groups
@@ -320,51 +466,53 @@ func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalSc
 		r += int(c)
 		groups[group[k]] += int(c)
 	}
-	e.evalGroups(groups, r, out, sc)
+	before := grow(sc.before, len(groups)+1)
+	sc.before = before
+	acc := 0
+	for g, c := range groups {
+		before[g] = acc
+		acc += c
+	}
+	before[len(groups)] = acc
+	e.evalGroups(e.all, groups, before, r, out, sc)
 }
 
-// evalGroups scores the multiset with groups[g] presences of group g, r
-// in all, all but the AUCs (left as they are: the resamples of Compare do
-// not use them), writing into out (its slices reused when long enough)
-// with scratch memory sc. Every score but the AUCs depends on the
-// presences only through their groups (their values): the partial ROC
-// ratios by partialArea, the omission rates through the presences of the
-// groups below each threshold, the Boyce index through those of the
-// groups each window holds. The counts are integers, so adding them up by
-// group gives exactly what adding them up by presence does.
-func (e *Evaluator) evalGroups(groups []int, r int, out *Values, sc *evalScratch) {
+// evalGroups scores the multiset with groups[g] presences of kept group
+// g of gs, before[g] in the kept groups before g (before[G] = r in all),
+// all but the AUCs (left as they are: the resamples of Compare do not use
+// them), writing into out (its slices reused when long enough) with
+// scratch memory sc. Every score but the AUCs depends on the presences
+// only through their groups (their values): the partial ROC ratios by
+// partialAreas, the omission rates through the presences of the groups
+// below each threshold, the Boyce index through those of the groups each
+// window holds. The counts are integers, so adding them up by group gives
+// exactly what adding them up by presence does.
+func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *Values, sc *evalScratch) {
 	out.Ratio = resize(out.Ratio, len(e.es))
 	out.RatioOK = resize(out.RatioOK, len(e.es))
-	out.Omission = resize(out.Omission, len(e.cut))
+	out.Omission = resize(out.Omission, len(gs.cut))
 	out.Boyce, out.BoyceOK = 0, false
 	out.N = r
 	if r == 0 {
 		return
 	}
 	rf := float64(r)
-	for i, ev := range e.es {
-		pr := e.p.partialArea(groups, r, ev)
+	prs := grow(sc.partial, len(e.es))
+	sc.partial = prs
+	gs.p.partialAreas(groups, r, e.es, prs, &sc.area)
+	for i, pr := range prs {
 		if pr.how == crossFormed {
 			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
 		}
 	}
-	// before[g]: the presences of the groups before g.
-	before := grow(sc.before, len(groups)+1)
-	sc.before = before
-	before[0] = 0
-	acc, after := 0, before[1:len(groups)+1]
-	for g, c := range groups {
-		acc += c
-		after[g] = acc
-	}
-	for t, cut := range e.cut {
+	for t, cut := range gs.cut {
 		out.Omission[t] = float64(r-before[cut]) / rf
 	}
 	if len(e.win) >= 3 {
 		ratio := resize(sc.ratio, len(e.win))
 		sc.ratio = ratio
 		win := e.win[:len(ratio)]
-		for w, span := range e.winGroups[:len(ratio)] {
+		for w, span := range gs.winGroups[:len(ratio)] {
 			run := before[span[1]] - before[span[0]]
 			ratio[w] = (float64(run) / rf) / win[w].share
 		}
@@ -486,17 +634,20 @@ func averageRanksInto(v []float64, sc *evalScratch) []float64 {
 // their bit patterns, which order as the values do: zp are the positions
 // of the zeros, sk the positive values' bits ascending and sp their
 // positions, all in sc's scratch slices. A bucket sort puts the positive
-// values in order (bucket b of nb holds the bits k with floor((k - lo) s)
-// = b, clamped to [0, nb-1], a non-decreasing function of k, so the
+// values in order (bucket b of nb = 3n holds the bits k with floor((k -
+// lo) s) = b, clamped to [0, nb-1], a non-decreasing function of k, so the
 // buckets are in order) and an insertion sort puts each bucket in order (a
-// few values each). lo and s come from the previous call's values (sc
-// keeps them; the first call looks at its own first): ratios of one
-// evaluator's resamples span much the same range, and a bucket function
-// that fits less well only leaves more to the insertion sort. The order
-// depends only on the values, whatever the buckets.
+// value or two each: three buckets per value leave a quarter as many
+// values sharing a bucket as one per value does, and the insertion sort's
+// unpredictable branches were most of the cost). lo and s come from the
+// previous call's smallest and largest positive values (sc keeps them; the
+// first call looks at its own): ratios of one evaluator's resamples span
+// much the same range, and a bucket function that fits less well only
+// leaves more to the insertion sort. The order depends only on the
+// values, whatever the buckets.
 func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []int32, ok bool) {
 	n := len(v)
-	nb := max(n, 1)
+	nb := max(3*n, 1)
 	if !sc.spanSet {
 		lo, hi := uint64(math.MaxUint64), uint64(0)
 		for _, x := range v {
@@ -513,7 +664,6 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 	// keys, pos and bucket, in the order of v; the zeros' positions at the
 	// back of pos.
 	m, z := 0, n
-	lo, hi := uint64(math.MaxUint64), uint64(0)
 	base, scale, top := sc.spanLo, sc.spanScale, float64(nb-1)
 	for i, x := range v {
 		k := math.Float64bits(x)
@@ -535,11 +685,10 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 		keys[m], pos[m], bucket[m] = k, int32(i), b
 		start[b+1]++
 		m++
-		lo, hi = min(lo, k), max(hi, k)
 	}
-	sc.setSpan(lo, hi, nb)
 	zp = pos[z:]
 	if m == 0 {
+		sc.setSpan(math.MaxUint64, 0, nb)
 		return zp, nil, nil, true
 	}
 	acc := int32(0)
@@ -567,6 +716,7 @@ func sortPositive(v []float64, sc *evalScratch) (zp []int32, sk []uint64, sp []i
 		}
 		sk[j], sp[j] = k, p
 	}
+	sc.setSpan(sk[0], sk[m-1], nb)
 	return zp, sk, sp, true
 }
 
@@ -634,7 +784,32 @@ func (e *Evaluator) BootSD(d Draws) (float64, int) {
 	e.own.mu.Unlock()
 	c := make([]int32, len(e.ids))
 	aucs := make([]float64, 0, d.B)
-	for b := 0; b < d.B; b++ {
+	b := 0
+	if rs.tab != nil {
+		// Four resamples at a time, each summed in its own order as
+		// below: the four sums are independent, so the processor adds
+		// them side by side instead of waiting on one sum's additions.
+		v := e.v[:len(e.ids)]
+		for ; b+4 <= d.B; b += 4 {
+			row0, row1, row2, row3 := rs.tab.row(b), rs.tab.row(b+1), rs.tab.row(b+2), rs.tab.row(b+3)
+			var r0, r1, r2, r3 int
+			var s0, s1, s2, s3 float64
+			for k, id := range e.ids {
+				c0, c1, c2, c3 := row0[id], row1[id], row2[id], row3[id]
+				r0, r1, r2, r3 = r0+int(c0), r1+int(c1), r2+int(c2), r3+int(c3)
+				s0 += float64(c0) * v[k]
+				s1 += float64(c1) * v[k]
+				s2 += float64(c2) * v[k]
+				s3 += float64(c3) * v[k]
+			}
+			for i, r := range [4]int{r0, r1, r2, r3} {
+				if r > 0 {
+					aucs = append(aucs, [4]float64{s0, s1, s2, s3}[i]/float64(r))
+				}
+			}
+		}
+	}
+	for ; b < d.B; b++ {
 		// The AUC of eval: the mean placement over the drawn copies,
 		// summed in the same order. eval skips the presences not drawn;
 		// adding their 0 x placement (+0: placements are finite and >= 0)
@@ -783,29 +958,34 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		if len(pb) == len(b.ids) && useOwnMemo {
 			mb = b.ownResamples(d)
 		}
+		// The other side's scores come from its presences in common:
+		// their group sets, and the counts and sums per kept group.
 		var rs *resampler
-		common := make([]int, len(pa))
-		ga, gb := make([]int, len(pa)), make([]int, len(pa))
+		var gsa, gsb *groupSet
+		var groupsA, beforeA, groupsB, beforeB []int
+		if ma == nil {
+			gsa = a.groupSet(pa)
+			groupsA, beforeA = make([]int, len(gsa.p.xge)), make([]int, len(gsa.p.xge)+1)
+		}
+		if mb == nil {
+			gsb = b.groupSet(pb)
+			groupsB, beforeB = make([]int, len(gsb.p.xge)), make([]int, len(gsb.p.xge)+1)
+		}
 		if ma == nil || mb == nil {
 			rs = newResampler(d)
-			for k := range pa {
-				common[k] = a.ids[pa[k]]
-				ga[k], gb[k] = a.group[pa[k]], b.group[pb[k]]
-			}
 		}
-		groupsA, groupsB := make([]int, len(a.p.j)), make([]int, len(b.p.j))
 		var ra, rb Values
 		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
 			if ma != nil {
 				ma.load(r, nE, nT, &ra)
 			} else {
-				a.evalGroups(groupsA, rs.groups(r, common, ga, groupsA), &ra, &sa)
+				a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa)
 			}
 			if mb != nil {
 				mb.load(r, nE, nT, &rb)
 			} else {
-				b.evalGroups(groupsB, rs.groups(r, common, gb, groupsB), &rb, &sb)
+				b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
 			}
 			for i := 0; i < nE; i++ {
 				if ra.RatioOK[i] && rb.RatioOK[i] {

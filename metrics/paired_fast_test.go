@@ -174,7 +174,7 @@ func TestEvalFastPath(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			d := Draws{N: n, B: 300, Seed: 5}
+			d := Draws{N: n, B: 302, Seed: 5} // BootSD takes four resamples at a time, and two more
 			var out Values
 			var sc evalScratch
 			count := make([]int32, n)
@@ -245,7 +245,7 @@ func ranksOf(v []float64) []float64 {
 // BenchmarkAverageRanks times the ranks of the Boyce index's 100 window
 // ratios, taken from resamples of an evaluator of BenchmarkPairedRun.
 func BenchmarkAverageRanks(b *testing.B) {
-	pr := newPairedRun(b, 1, 1, 500)
+	pr := newPairedRun(b, 1, 1, 500, false)
 	ev := pr.evals[0][0]
 	rs := newResampler(pr.d)
 	c := make([]int32, len(ev.ids))
@@ -263,4 +263,192 @@ func BenchmarkAverageRanks(b *testing.B) {
 		averageRanksInto(ratios[i%len(ratios)], &sc)
 	}
 	stop()
+}
+
+// TestCompareMatchesReference: Compare's resampled differences (each side
+// scored on its group set: every group, or only those holding a common
+// presence, the counts gathered in group order) are bit for bit those of
+// scoring every resample with evalReference on the counts of the common
+// presences, for nested, overlapping and equal sets of presences with
+// many ties (groups of several presences, some keeping only part of
+// them), two models, drawn again and from the table, memo or not.
+func TestCompareMatchesReference(t *testing.T) {
+	r := rand.New(rand.NewPCG(61, 62))
+	c := randomCase(r, 400, 120, 30, 40)
+	s := Settings{E: []float64{0.05, 0.2}, BoyceSteps: 25}
+	_, acc := build(t, c, nil, 128)
+	ths := []float64{c.test[0], c.test[1], c.test[2]}
+	sets := []func(int) bool{
+		func(int) bool { return true },
+		func(i int) bool { return i%3 != 0 },
+		func(i int) bool { return i%2 == 0 || i < 10 },
+		func(i int) bool { return i%7 < 2 },
+	}
+	mk := func(m, k int) *Evaluator {
+		var test []float64
+		var ids []int
+		for i, v := range c.test {
+			if sets[k](i) {
+				if m == 1 {
+					v = c.test[(i+5)%len(c.test)]
+				}
+				test, ids = append(test, v), append(ids, i)
+			}
+		}
+		e, err := NewEvaluator(acc, test, ids, ths, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return e
+	}
+	d := Draws{N: len(c.test), B: 80, Seed: 13}
+	reference := func(a, b *Evaluator) Comparison {
+		inB := map[int]bool{}
+		for _, id := range b.ids {
+			inB[id] = true
+		}
+		common := map[int]bool{}
+		for _, id := range a.ids {
+			if inB[id] {
+				common[id] = true
+			}
+		}
+		fa, fb := a.evalReference(a.ones(common)), b.evalReference(b.ones(common))
+		nE, nT := len(a.es), len(a.cut)
+		var cmp Comparison
+		cmp.PartialROC, cmp.Omission = make([]Resampled, nE), make([]Resampled, nT)
+		for i := range cmp.PartialROC {
+			cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
+		}
+		for i := range cmp.Omission {
+			cmp.Omission[i] = Resampled{A: fa.Omission[i], B: fb.Omission[i], Defined: fa.N > 0, Resamples: d.B}
+		}
+		cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
+		diffs := make([][]float64, nE+nT+1)
+		global := make([]int32, d.N)
+		on := func(e *Evaluator) []int32 {
+			cnt := make([]int32, len(e.ids))
+			for k, id := range e.ids {
+				if common[id] {
+					cnt[k] = global[id]
+				}
+			}
+			return cnt
+		}
+		for b2 := 0; b2 < d.B && len(common) > 0; b2++ {
+			d.fill(b2, global)
+			ra, rb := a.evalReference(on(a)), b.evalReference(on(b))
+			for i := 0; i < nE; i++ {
+				if ra.RatioOK[i] && rb.RatioOK[i] {
+					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
+				}
+			}
+			if ra.N > 0 {
+				for i := 0; i < nT; i++ {
+					diffs[nE+i] = append(diffs[nE+i], ra.Omission[i]-rb.Omission[i])
+				}
+			}
+			if ra.BoyceOK && rb.BoyceOK {
+				diffs[nE+nT] = append(diffs[nE+nT], ra.Boyce-rb.Boyce)
+			}
+		}
+		finish := func(x *Resampled, ds []float64) {
+			x.NotFormed = d.B - len(ds)
+			if !x.Defined || len(ds) < 2 {
+				*x = Resampled{A: x.A, B: x.B, Resamples: x.Resamples, NotFormed: x.NotFormed}
+				return
+			}
+			x.Diff = x.A - x.B
+			_, x.SD = MeanSD(ds)
+			x.Low, x.High = quantileSelect(ds, 0.025), quantileSelect(ds, 0.975)
+		}
+		for i := range cmp.PartialROC {
+			finish(&cmp.PartialROC[i], diffs[i])
+		}
+		for i := range cmp.Omission {
+			finish(&cmp.Omission[i], diffs[nE+i])
+		}
+		finish(&cmp.Boyce, diffs[nE+nT])
+		return cmp
+	}
+	type side struct{ m, k int }
+	pairs := [][2]side{{{0, 1}, {0, 0}}, {{0, 0}, {0, 1}}, {{0, 0}, {1, 0}}, {{0, 1}, {0, 2}}, {{1, 2}, {0, 3}}, {{0, 3}, {1, 1}}, {{1, 0}, {1, 0}}}
+	ties, kept := false, false
+	for _, memo := range []bool{false, true} {
+		useOwnMemo, useDrawTable = memo, memo
+		for i, p := range pairs {
+			a, b := mk(p[0].m, p[0].k), mk(p[1].m, p[1].k)
+			got, err := Compare(a, b, d)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want := reference(a, b)
+			if !reflect.DeepEqual(got.PartialROC, want.PartialROC) || !reflect.DeepEqual(got.Omission, want.Omission) || !reflect.DeepEqual(got.Boyce, want.Boyce) {
+				t.Errorf("pair %d, memo %v:\n%+v %+v %+v\nreference\n%+v %+v %+v", i, memo, got.PartialROC, got.Omission, got.Boyce, want.PartialROC, want.Omission, want.Boyce)
+			}
+			ties = ties || a.all.of != nil
+			var pa []int
+			for k, id := range a.ids {
+				if slices.Contains(b.ids, id) {
+					pa = append(pa, k)
+				}
+			}
+			if gs := a.groupSet(pa); len(gs.p.xge) < len(a.p.xge) && gs.of != nil {
+				kept = true
+			}
+		}
+	}
+	useOwnMemo, useDrawTable = true, true
+	if !ties || !kept {
+		t.Errorf("ties %v, groups left out with ties kept %v: the test does not cover both", ties, kept)
+	}
+}
+
+// TestScoreEvaluator: ScoreEvaluator gives Score's scores and the
+// evaluator NewEvaluator makes from them (every field, down to the
+// groups and Boyce windows), on cases with ties and fixed thresholds,
+// and no evaluator on an extent that is not scored.
+func TestScoreEvaluator(t *testing.T) {
+	r := rand.New(rand.NewPCG(71, 72))
+	for trial := 0; trial < 40; trial++ {
+		c := randomCase(r, 50+r.IntN(300), 5+r.IntN(60), 3+r.IntN(20), 1+r.IntN(60))
+		fixed := []float64{c.test[0]}
+		_, a := build(t, c, fixed, 64)
+		ids := r.Perm(len(c.test) + 10)[:len(c.test)]
+		s := Settings{E: []float64{0.05, 0.2}, Iterations: 50, Seed: uint64(trial), FixedThresholds: fixed, BoyceSteps: 10 + r.IntN(50)}
+		want, err := Score(a, c.train, c.test, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, ev, err := ScoreEvaluator(a, c.train, c.test, ids, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(got, want) {
+			t.Fatalf("trial %d: ScoreEvaluator's scores differ from Score's", trial)
+		}
+		if !want.Scored {
+			if ev != nil {
+				t.Errorf("trial %d: an evaluator on an extent not scored", trial)
+			}
+			continue
+		}
+		ths := make([]float64, len(want.Thresholds))
+		for i, th := range want.Thresholds {
+			ths[i] = th.Value
+		}
+		wantEv, err := NewEvaluator(a, c.test, ids, ths, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(ev, wantEv) {
+			t.Fatalf("trial %d: ScoreEvaluator's evaluator differs from NewEvaluator's", trial)
+		}
+	}
+	var empty testCase
+	empty.test = []float64{1}
+	_, a := build(t, empty, nil, 16)
+	if sc, ev, err := ScoreEvaluator(a, nil, empty.test, []int{0}, Settings{}); err != nil || sc.Scored || ev != nil {
+		t.Errorf("empty extent: scored %v, evaluator %v, err %v", sc.Scored, ev, err)
+	}
 }

@@ -134,87 +134,189 @@ type partialResult struct {
 // falls strictly inside the segment of a value shared by two or more
 // distinct test presences of the full set (p.count, not counts: a
 // resample that draws one presence twice makes no tie), how is crossTie
-// and the areas are left at 0.
-//
-// Nothing is added to the model area before the crossing, so the
-// crossing group is found from the end (the presences at or above a
-// group, r minus those after it, only grow along the groups) and the
-// areas are summed from there in the curve's order: the same operations
-// in the same order as a walk over every group from the start, so the
-// same bits, in O(groups from the crossing on) rather than O(groups).
+// and the areas are left at 0. It is partialAreas for one E.
 func (p *presences) partialArea(counts []int, r int, e float64) partialResult {
+	var res [1]partialResult
+	var sc areaScratch
+	p.partialAreas(counts, r, []float64{e}, res[:], &sc)
+	return res[0]
+}
+
+// areaScratch is the working memory of partialAreas, reused across calls.
+type areaScratch struct {
+	nz    []int32   // the groups with presences after the first crossing
+	cross []int     // per E: the crossing group (-1: none)
+	ya    []int     // per E: the presences of the groups up to the crossing, its own included
+	model []float64 // per E: the model area summed so far
+}
+
+// partialAreas sets res[i] to the partial ROC areas of the curve of counts
+// (see partialArea) for allowable omission es[i], for every i. res must be
+// as long as es.
+//
+// Nothing is added to the model area before the crossing, so each
+// crossing group is found from the end (the presences at or above a
+// group, r minus those after it, only grow along the groups) and the areas
+// are summed from there in the curve's order: the same operations in the
+// same order as a walk over every group from the start, so the same bits,
+// in O(groups from the crossing on) rather than O(groups). The groups
+// with presences after the first crossing are listed once (nz, without a
+// branch per group, so the resamples' scattered empty groups cost no
+// mispredicted branch), and every E walks that list; the terms each group
+// adds (its horizontal and diagonal pieces) depend on the counts and
+// areas alone, not on E, so with two values of E both sums are taken in
+// one walk, each with its own operations in its own order.
+func (p *presences) partialAreas(counts []int, r int, es []float64, res []partialResult, sc *areaScratch) {
 	rf := float64(r)
-	tau := snapCount((1 - e) * rf)
-	// cross is the first group with presences whose running count yb
-	// reaches tau, ya the count before it; last the last group with
-	// presences. Walking down from last, the count before a group without
-	// presences is its yb, which reaches tau, so only the crossing group
-	// stops the walk.
+	// last is the last group with presences.
 	last := len(counts) - 1
 	for last >= 0 && counts[last] == 0 {
 		last--
 	}
-	cross, ya := -1, 0
-	if last >= 0 && float64(r) >= tau {
-		g, yb := last, r
-		for ; g >= 0; g-- {
-			a := yb - counts[g]
-			if !(float64(a) >= tau) {
-				break
+	nE := len(es)
+	crossOf, yaOf := resize(sc.cross, nE), resize(sc.ya, nE)
+	model := resize(sc.model, nE)
+	sc.cross, sc.ya, sc.model = crossOf, yaOf, model
+	first := last + 1
+	for i, e := range es {
+		tau := snapCount((1 - e) * rf)
+		// cross is the first group with presences whose running count yb
+		// reaches tau, ya the count before it. Walking down from last,
+		// the count before a group without presences is its yb, which
+		// reaches tau, so only the crossing group stops the walk.
+		cross, ya := -1, 0
+		if last >= 0 && float64(r) >= tau {
+			g, yb := last, r
+			for ; g >= 0; g-- {
+				a := yb - counts[g]
+				if !(float64(a) >= tau) {
+					break
+				}
+				yb = a
 			}
-			yb = a
-		}
-		if g < 0 { // tau <= 0: the first group with presences crosses
-			g = 0
-			for counts[g] == 0 {
-				g++
+			if g < 0 { // tau <= 0: the first group with presences crosses
+				g = 0
+				for counts[g] == 0 {
+					g++
+				}
+				yb = counts[g]
 			}
-			yb = counts[g]
+			cross, ya = g, yb-counts[g]
 		}
-		cross, ya = g, yb-counts[g]
-	}
-	var res partialResult
-	var model float64
-	prevX := 0.0
-	if last >= 0 {
-		prevX = p.xge[last]
-	}
-	if cross >= 0 {
+		res[i] = partialResult{}
+		crossOf[i] = cross
+		if cross < 0 {
+			continue
+		}
+		first = min(first, cross)
 		c := counts[cross]
 		yb := ya + c
 		xa, xb := p.xgt[cross], p.xge[cross]
 		s := (tau - float64(ya)) / float64(c)
 		if s >= 1 {
-			res.xE = xb
+			res[i].xE = xb
 		} else {
-			res.xE = xa + s*(xb-xa)
+			res[i].xE = xa + s*(xb-xa)
 			if p.count[cross] >= 2 && s > 0 {
-				res.how, res.tied, res.tieGroup = crossTie, c, cross
+				res[i].how, res[i].tied, res[i].tieGroup = crossTie, c, cross
 			}
 		}
-		model += (xb - res.xE) * (tau + float64(yb)) / 2
-		prevX, prevY := xb, yb
-		ya = yb
-		for g := cross + 1; g <= last; g++ {
-			c := counts[g]
-			if c == 0 {
-				continue
+		var m float64
+		m += (xb - res[i].xE) * (tau + float64(yb)) / 2
+		model[i], yaOf[i] = m, yb
+	}
+	// nz: the groups with presences after the first crossing, in order.
+	var nz []int32
+	if first < last {
+		nz = grow(sc.nz, last-first)
+		sc.nz = nz
+		k := 0
+		for g := first + 1; g <= last; g++ {
+			nz[k] = int32(g)
+			if counts[g] != 0 {
+				k++
 			}
-			yb := ya + c
+		}
+		nz = nz[:k]
+	}
+	// from returns the position in nz of the first group after the
+	// crossing of E i.
+	from := func(i int) int {
+		k := 0
+		for k < len(nz) && int(nz[k]) <= crossOf[i] {
+			k++
+		}
+		return k
+	}
+	walk := func(i int) {
+		if crossOf[i] < 0 {
+			return
+		}
+		m, ya := model[i], yaOf[i]
+		prevX := p.xge[crossOf[i]]
+		for _, g := range nz[from(i):] {
+			yb := ya + counts[g]
 			xa, xb := p.xgt[g], p.xge[g]
-			model += (xa - prevX) * float64(prevY)  // horizontal B->A
-			model += (xb - xa) * float64(ya+yb) / 2 // diagonal or vertical A->B
-			prevX, prevY = xb, yb
-			ya = yb
+			m += (xa - prevX) * float64(ya)     // horizontal B->A
+			m += (xb - xa) * float64(ya+yb) / 2 // diagonal or vertical A->B
+			prevX, ya = xb, yb
+		}
+		model[i] = m
+	}
+	if nE == 2 && crossOf[0] >= 0 && crossOf[1] >= 0 {
+		// Both sums in one walk: the E with the earlier crossing alone up
+		// to the other's crossing, then both, each adding the same terms
+		// in the same order as walk.
+		i0, i1 := 0, 1
+		if crossOf[1] < crossOf[0] {
+			i0, i1 = 1, 0
+		}
+		k0, k1 := from(i0), from(i1)
+		m0, ya := model[i0], yaOf[i0]
+		prevX := p.xge[crossOf[i0]]
+		for _, g := range nz[k0:k1] {
+			yb := ya + counts[g]
+			xa, xb := p.xgt[g], p.xge[g]
+			m0 += (xa - prevX) * float64(ya)
+			m0 += (xb - xa) * float64(ya+yb) / 2
+			prevX, ya = xb, yb
+		}
+		// Here prevX and ya are those of the later crossing group (the
+		// last group with presences before nz[k1]), as walk starts i1.
+		m1 := model[i1]
+		for _, g := range nz[k1:] {
+			yb := ya + counts[g]
+			xa, xb := p.xgt[g], p.xge[g]
+			m0 += (xa - prevX) * float64(ya)
+			m0 += (xb - xa) * float64(ya+yb) / 2
+			m1 += (xa - prevX) * float64(ya)
+			m1 += (xb - xa) * float64(ya+yb) / 2
+			prevX, ya = xb, yb
+		}
+		model[i0], model[i1] = m0, m1
+	} else {
+		for i := range es {
+			walk(i)
 		}
 	}
-	model += (1 - prevX) * rf // last B -> (1,1)
-	res.model = model / rf
-	res.null = (1 - res.xE*res.xE) / 2
-	if !(res.null > 0) {
-		res.model, res.null, res.how = 0, 0, crossNull
+	// The curve's last vertex is the last group's B (the origin when no
+	// group has presences); from there to (1,1).
+	prevX := 0.0
+	if last >= 0 {
+		prevX = p.xge[last]
 	}
-	return res
+	for i := range es {
+		m := model[i]
+		if crossOf[i] < 0 {
+			m = 0
+		}
+		m += (1 - prevX) * rf // last B -> (1,1)
+		res[i].model = m / rf
+		res[i].null = (1 - res[i].xE*res[i].xE) / 2
+		if !(res[i].null > 0) {
+			res[i].model, res[i].null, res[i].how = 0, 0, crossNull
+		}
+	}
 }
 
 // discreteArea is the partial ROC read at thresholds only: x_E is the
@@ -290,13 +392,15 @@ func partialROC(p *presences, s Settings) []PartialROC {
 	for i := range ratios {
 		ratios[i] = make([]float64, 0, B)
 	}
+	prs := make([]partialResult, len(s.E))
+	var sc areaScratch
 	for it := 0; it < B; it++ {
 		clear(counts)
 		for k := 0; k < r; k++ {
 			counts[p.member[intN(rng, p.n)]]++
 		}
-		for i, e := range s.E {
-			pr := p.partialArea(counts, r, e)
+		p.partialAreas(counts, r, s.E, prs, &sc)
+		for i, pr := range prs {
 			if pr.how != crossFormed {
 				out[i].NotFormed++
 				continue

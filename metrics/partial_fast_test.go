@@ -59,7 +59,8 @@ func (p *presences) partialAreaReference(counts []int, r int, e float64) partial
 }
 
 // TestPartialAreaFromCrossing: partialArea, which finds the crossing from
-// the end, gives bit for bit what the walk from the start gives, on
+// the end, and partialAreas, several E at once, give bit for bit what the
+// walk from the start gives, on
 // random counts (zero groups, ties of the full set, crossings on a tie, on
 // a vertical step, at x = 1) for E from 0 to 1 (Settings allows 0 < E
 // < 1; E = 1 crosses at the first group drawn), and on r = 0.
@@ -70,6 +71,7 @@ func TestPartialAreaFromCrossing(t *testing.T) {
 		return eq(a.model, b.model) && eq(a.null, b.null) && eq(a.xE, b.xE) && a.how == b.how && a.tied == b.tied && a.tieGroup == b.tieGroup
 	}
 	kinds := map[crossing]int{}
+	var sc areaScratch
 	for trial := 0; trial < 3000; trial++ {
 		m := 1 + r.IntN(60)
 		p := &presences{count: make([]int, m), xgt: make([]float64, m), xge: make([]float64, m)}
@@ -94,12 +96,29 @@ func TestPartialAreaFromCrossing(t *testing.T) {
 			}
 			n += counts[g]
 		}
-		for _, e := range []float64{0, 0.01, 0.05, 0.1, 0.2, 0.5, 0.99, 1} {
+		all := []float64{0, 0.01, 0.05, 0.1, 0.2, 0.5, 0.99, 1}
+		for _, e := range all {
 			got, want := p.partialArea(counts, n, e), p.partialAreaReference(counts, n, e)
 			if !same(got, want) {
 				t.Fatalf("trial %d, E %g, counts %v: %+v, want %+v", trial, e, counts, got, want)
 			}
 			kinds[want.how]++
+		}
+		// Several E at once (one walk for two), in either order, equal
+		// values included (one crossing), with scratch left from other
+		// trials.
+		for _, es := range [][]float64{
+			{all[r.IntN(len(all))], all[r.IntN(len(all))]},
+			{0.05, 0.1}, {0.1, 0.05}, {0.05, 0.05},
+			{all[r.IntN(len(all))], all[r.IntN(len(all))], all[r.IntN(len(all))]},
+		} {
+			got := make([]partialResult, len(es))
+			p.partialAreas(counts, n, es, got, &sc)
+			for i, e := range es {
+				if want := p.partialAreaReference(counts, n, e); !same(got[i], want) {
+					t.Fatalf("trial %d, E %v (E %g), counts %v: %+v, want %+v", trial, es, e, counts, got[i], want)
+				}
+			}
 		}
 	}
 	for _, k := range []crossing{crossFormed, crossNull, crossTie} {

@@ -95,51 +95,87 @@ type Point struct{ X, Y float64 }
 // Score's cost depends on the number of layout values, fine-histogram bins,
 // presences and bootstrap iterations, never on the number of cells.
 func Score(a *Accumulator, train, test []float64, s Settings) (Scores, error) {
+	sc, _, err := score(a, train, test, s)
+	return sc, err
+}
+
+// scored is what Score computed that NewEvaluator needs too, for the same
+// accumulator, test values and settings (see ScoreEvaluator).
+type scored struct {
+	cum     *cumulative
+	testIdx []int
+	tp      *presences
+	win     []boyceWindow
+}
+
+// ScoreEvaluator is Score, then, when the extent is scored, NewEvaluator
+// on the same accumulator, test values and settings, with ids the test
+// presences' global indices and the values of Score's thresholds as the
+// thresholds; the evaluator takes what Score computed (the cumulative
+// areas, the test presences' groups, the Boyce windows) instead of
+// computing it again, so it is the evaluator NewEvaluator makes. ev is nil
+// when sc.Scored is false.
+func ScoreEvaluator(a *Accumulator, train, test []float64, ids []int, s Settings) (sc Scores, ev *Evaluator, err error) {
+	sc, parts, err := score(a, train, test, s)
+	if err != nil || !sc.Scored {
+		return sc, nil, err
+	}
+	ths := make([]float64, len(sc.Thresholds))
+	for i, t := range sc.Thresholds {
+		ths[i] = t.Value
+	}
+	ev, err = newEvaluator(a, test, ids, ths, s, parts)
+	return sc, ev, err
+}
+
+// score is Score, with what it computed that NewEvaluator needs (nil
+// when the extent is not scored).
+func score(a *Accumulator, train, test []float64, s Settings) (Scores, *scored, error) {
 	if a == nil {
-		return Scores{}, fmt.Errorf("metrics: Score: nil accumulator")
+		return Scores{}, nil, fmt.Errorf("metrics: Score: nil accumulator")
 	}
 	if err := s.Validate(); err != nil {
-		return Scores{}, err
+		return Scores{}, nil, err
 	}
 	s = s.WithDefaults()
 	l := a.layout
 	for i, v := range train {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return Scores{}, fmt.Errorf("metrics: Score: training presence %d has non-finite value %v", i, v)
+			return Scores{}, nil, fmt.Errorf("metrics: Score: training presence %d has non-finite value %v", i, v)
 		}
 	}
 	for i, v := range test {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return Scores{}, fmt.Errorf("metrics: Score: test presence %d has non-finite value %v", i, v)
+			return Scores{}, nil, fmt.Errorf("metrics: Score: test presence %d has non-finite value %v", i, v)
 		}
 	}
 	trainIdx, err := layoutIndices(l, train, "training presence")
 	if err != nil {
-		return Scores{}, err
+		return Scores{}, nil, err
 	}
 	testIdx, err := layoutIndices(l, test, "test presence")
 	if err != nil {
-		return Scores{}, err
+		return Scores{}, nil, err
 	}
 	fixedIdx, err := layoutIndices(l, s.FixedThresholds, "fixed threshold")
 	if err != nil {
-		return Scores{}, err
+		return Scores{}, nil, err
 	}
 
 	sc := Scores{Cells: a.cells, Area: a.area, TestN: len(test), TrainN: len(train)}
 	switch {
 	case a.cells == 0:
 		sc.NotScored = ReasonNoBackground
-		return sc, nil
+		return sc, nil, nil
 	case a.area == 0:
 		sc.NotScored = ReasonNoArea
-		return sc, nil
+		return sc, nil, nil
 	case len(test) == 0:
 		sc.NotScored = ReasonNoTest
-		return sc, nil
+		return sc, nil, nil
 	case a.min == a.max:
 		sc.NotScored = ReasonConstant
-		return sc, nil
+		return sc, nil, nil
 	}
 	sc.Scored = true
 
@@ -162,11 +198,11 @@ func Score(a *Accumulator, train, test []float64, s Settings) (Scores, error) {
 	if s.ThresholdTrain != nil {
 		for i, v := range s.ThresholdTrain {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return Scores{}, fmt.Errorf("metrics: Score: ThresholdTrain[%d] has non-finite value %v", i, v)
+				return Scores{}, nil, fmt.Errorf("metrics: Score: ThresholdTrain[%d] has non-finite value %v", i, v)
 			}
 		}
 		if thIdx, err = layoutIndices(l, s.ThresholdTrain, "threshold training presence"); err != nil {
-			return Scores{}, err
+			return Scores{}, nil, err
 		}
 		thTrain = s.ThresholdTrain
 	}
@@ -174,10 +210,11 @@ func Score(a *Accumulator, train, test []float64, s Settings) (Scores, error) {
 
 	sortedTest := slices.Clone(test)
 	slices.Sort(sortedTest)
-	sc.Boyce = boyce(a, sortedTest, s.BoyceWidth, s.BoyceSteps)
+	win := boyceWindows(a, s.BoyceWidth, s.BoyceSteps)
+	sc.Boyce = boyce(win, s.BoyceSteps, sortedTest)
 
 	sc.Curve = thinCurve(tp.curve(), MaxCurvePoints)
-	return sc, nil
+	return sc, &scored{cum: cum, testIdx: testIdx, tp: tp, win: win}, nil
 }
 
 // layoutIndices returns, for each value, its index j in the layout

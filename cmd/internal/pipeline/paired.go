@@ -32,21 +32,6 @@ func (s *Study) draws() metrics.Draws {
 	return metrics.Draws{N: s.res.PointCounts.Test, B: s.o.Iterations, Seed: s.o.Seed}
 }
 
-// evaluator returns the evaluator of a model on an extent for the paired
-// comparisons and the AUC's SD over the paired resamples.
-func (s *Study) evaluator(acc *metrics.Accumulator, test []float64, global []int, out metrics.Scores, set metrics.Settings) (*metrics.Evaluator, float64, error) {
-	ths := make([]float64, len(out.Thresholds))
-	for i, t := range out.Thresholds {
-		ths[i] = t.Value
-	}
-	ev, err := metrics.NewEvaluator(acc, test, global, ths, set)
-	if err != nil {
-		return nil, 0, err
-	}
-	sd, _ := ev.BootSD(s.draws())
-	return ev, sd, nil
-}
-
 // paired fills Results.Paired: for every model and null, each scored
 // extent minus the base extent; for every extent, each pair of models
 // (earlier minus later in model order, nulls left out: they are never

@@ -7,6 +7,7 @@ import (
 	"math"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"areasweep/cmd/internal/pass"
@@ -95,6 +96,35 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	return nil
 }
 
+// parallel calls f(0), ..., f(n-1) on the run's workers and returns when
+// all have returned. f must only write what belongs to its index, so that
+// nothing depends on the schedule.
+func (s *Study) parallel(n int, f func(i int)) {
+	workers := s.o.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, n)
+	if workers <= 1 {
+		for i := range n {
+			f(i)
+		}
+		return
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := int(next.Add(1) - 1); i < n; i = int(next.Add(1) - 1) {
+				f(i)
+			}
+		}()
+	}
+	wg.Wait()
+}
+
 // recordModel records model m with its pass's value range and floor share,
 // and the preview when the pass made one.
 func (s *Study) recordModel(m report.Model, sums *Sums) report.Model {
@@ -175,7 +205,10 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	train, test := in.values(k, vocab.RoleTrain), in.values(k, vocab.RoleTest)
 	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
 	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
-	out, err := metrics.Score(acc, train, test, set)
+	// The scores, and the evaluator of the paired comparisons (on the
+	// values of the scores' thresholds) from what the scoring computed.
+	global, ids := in.testIDs(k)
+	out, ev, err := metrics.ScoreEvaluator(acc, train, test, global, set)
 	if err != nil {
 		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
 	}
@@ -183,13 +216,8 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	if !sc.Scored {
 		return extentScore{sc: sc}, nil
 	}
-	global, ids := in.testIDs(k)
 	sc.TestPointIDs = ids
-	ev, sd, err := s.evaluator(acc, test, global, out, set)
-	if err != nil {
-		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
-	}
-	sc.AUCBootSD = sd
+	sc.AUCBootSD, _ = ev.BootSD(s.draws())
 	return extentScore{sc: sc, ev: ev, curve: report.NewCurve(model, mem.ID, out.Curve)}, nil
 }
 
@@ -222,14 +250,34 @@ func firstRatio(sc report.Score) string {
 // the test presences of B; ShareOfChange is each ring's share of the
 // chain's change of AUC from its innermost to its outermost member.
 func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(int, vocab.Role) []float64) error {
+	// Every ring of every chain at once on the workers, then recorded in
+	// chain order.
+	type step struct {
+		name string
+		a, b int
+		r    metrics.Ring
+		err  error
+	}
+	var steps []step
 	for _, name := range s.fam.ChainNames() {
 		chain := s.fam.Chain(name)
-		var rs []report.Ring
 		for i := 1; i < len(chain); i++ {
-			a, b := chain[i-1], chain[i]
-			r, err := metrics.DecomposeRing(accs[a], accs[b], presence(b, vocab.RoleTest))
-			if err != nil {
-				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, err)
+			steps = append(steps, step{name: name, a: chain[i-1], b: chain[i]})
+		}
+	}
+	s.parallel(len(steps), func(i int) {
+		st := &steps[i]
+		st.r, st.err = metrics.DecomposeRing(accs[st.a], accs[st.b], presence(st.b, vocab.RoleTest))
+	})
+	for _, name := range s.fam.ChainNames() {
+		var rs []report.Ring
+		for _, st := range steps {
+			if st.name != name {
+				continue
+			}
+			a, b, r := st.a, st.b, st.r
+			if st.err != nil {
+				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, st.err)
 			}
 			if r.Defined {
 				rs = append(rs, report.NewRing(name, model, s.fam.Members[a].ID, s.fam.Members[b].ID, r, pass.AreaUnitsPerKm2))
@@ -268,12 +316,12 @@ func (s *Study) omissions(model string, mp modelPoints) {
 func (s *Study) preview(pv *pass.Preview, st pass.Stats) *report.Preview {
 	g, fam := s.grid, s.fam
 	masks := make([][]bool, len(fam.Members))
-	for k := range fam.Members {
+	s.parallel(len(fam.Members), func(k int) {
 		masks[k] = make([]bool, len(pv.Values))
 		for i := range pv.Values {
 			masks[k][i] = fam.Has(k, pv.SourceCell(g, i))
 		}
-	}
+	})
 	return report.NewPreview(pv.Width, pv.Height, g.Bounds(), pv.Values, st.Min, st.Max, masks)
 }
 
