@@ -4,10 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
-	"runtime"
 	"slices"
 	"sync"
-	"sync/atomic"
 )
 
 // The distance histogram's bins follow the bits of the float64 distance:
@@ -701,18 +699,12 @@ func (b *Background) get(k int) *bgExtent {
 }
 
 // flush merges the partial sums into b.merged, once, adding up each nested
-// sequence's ring sums (Nest); b.mu must be held. The histograms' additions
-// (a few hundred of them, each over every bin, at 60 extents) are decided
-// and listed first, in the order they would be made one at a time, then
-// made on the cores, each core taking every listed addition over its own
-// range of bins in that order, so each bin sees the same additions in the
-// same order (integers, besides: the sums do not depend on the order).
+// sequence's ring sums (Nest); b.mu must be held.
 func (b *Background) flush() {
 	if b.done {
 		return
 	}
 	b.done = true
-	var ops []histAdd
 	for i := range b.shards {
 		sh := &b.shards[i]
 		sh.mu.Lock()
@@ -729,13 +721,13 @@ func (b *Background) flush() {
 					took = k
 					continue
 				}
-				addExtentOps(&sh.ext[k], &c.ext, &ops)
+				addExtent(&sh.ext[k], &c.ext)
 			}
 			if took >= 0 {
 				sh.ext[took] = c.ext
 			}
 		}
-		b.merged = takeExtents(b.merged, sh.ext, &ops)
+		b.merged = takeExtents(b.merged, sh.ext)
 		sh.ext, sh.classes = nil, nil
 		sh.mu.Unlock()
 	}
@@ -747,65 +739,20 @@ func (b *Background) flush() {
 			if seq[i] >= len(b.merged) {
 				b.merged = append(b.merged, make([]bgExtent, seq[i]+1-len(b.merged))...)
 			}
-			addExtentOps(&b.merged[seq[i]], &b.merged[seq[i-1]], &ops)
+			addExtent(&b.merged[seq[i]], &b.merged[seq[i-1]])
 		}
 	}
-	b.merged = takeExtents(b.merged, b.whole, &ops)
+	b.merged = takeExtents(b.merged, b.whole)
 	b.whole = nil
-	runHistAdds(ops)
-}
-
-// histAdd is one histogram addition of flush: dst += src, bin by bin.
-type histAdd struct{ dst, src []int64 }
-
-// runHistAdds makes the additions ops in order, the bins split in ranges
-// of whole pages among the cores (histAddChunk bins per piece).
-func runHistAdds(ops []histAdd) {
-	if len(ops) == 0 {
-		return
-	}
-	pieces := (histLen + histAddChunk - 1) / histAddChunk
-	workers := min(runtime.GOMAXPROCS(0), pieces)
-	var next atomic.Int32
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for p := int(next.Add(1) - 1); p < pieces; p = int(next.Add(1) - 1) {
-				lo, hi := p*histAddChunk, min((p+1)*histAddChunk, histLen)
-				for _, op := range ops {
-					addHistRange(op.dst[lo:hi], op.src[lo:hi])
-				}
-			}
-		}()
-	}
-	wg.Wait()
-}
-
-// histAddChunk is the bins of one piece of runHistAdds: 16 pages of 4 KiB.
-const histAddChunk = 8192
-
-// addHistRange adds src to dst bin by bin, writing only the bins src
-// holds something at (a page of dst that no cell reached is then never
-// written: its first touch would cost a page fault).
-func addHistRange(dst, src []int64) {
-	dst = dst[:len(src)]
-	for h, a := range src {
-		if a != 0 {
-			dst[h] += a
-		}
-	}
 }
 
 // takeExtents is addExtents for a src that is dropped afterwards (the
 // partial sums when they are merged): an extent of dst with no sums yet
 // (no histogram: every sum is zero) takes src's, histogram included,
 // instead of a copy into a fresh one (about 221 KB, whose first touch
-// costs page faults); the others add them (their histograms' additions
-// listed in ops, see addExtentOps), with addExtent's overflow ignored as
-// flush ignores it.
-func takeExtents(dst, src []bgExtent, ops *[]histAdd) []bgExtent {
+// costs page faults); the others add them, with addExtent's overflow
+// ignored as flush ignores it.
+func takeExtents(dst, src []bgExtent) []bgExtent {
 	if len(src) > len(dst) {
 		dst = append(dst, make([]bgExtent, len(src)-len(dst))...)
 	}
@@ -814,7 +761,7 @@ func takeExtents(dst, src []bgExtent, ops *[]histAdd) []bgExtent {
 			dst[k], src[k] = src[k], bgExtent{}
 			continue
 		}
-		addExtentOps(&dst[k], &src[k], ops)
+		addExtent(&dst[k], &src[k])
 	}
 	return dst
 }
@@ -838,13 +785,6 @@ func addExtents(dst, src []bgExtent) ([]bgExtent, error) {
 // addExtent adds e's sums to m's and reports an overflow of the area or
 // the 128-bit sum.
 func addExtent(m, e *bgExtent) (overflow bool) {
-	return addExtentOps(m, e, nil)
-}
-
-// addExtentOps is addExtent with the histogram's addition appended to ops
-// instead of made, unless ops is nil (the histograms must then not change
-// before the listed additions are made).
-func addExtentOps(m, e *bgExtent, ops *[]histAdd) (overflow bool) {
 	if e.hist == nil {
 		return false
 	}
@@ -856,10 +796,13 @@ func addExtentOps(m, e *bgExtent, ops *[]histAdd) (overflow bool) {
 	hi, over := bits.Add64(m.sumHi, e.sumHi, carry)
 	overflow = area < m.area || over != 0
 	m.area, m.sumHi, m.sumLo = area, hi, lo
-	if ops != nil {
-		*ops = append(*ops, histAdd{m.hist, e.hist})
-	} else {
-		addHistRange(m.hist, e.hist)
+	// Only the bins that hold something: a page of m's histogram that no
+	// cell reached is then never written (its first touch would cost a
+	// page fault).
+	for h, a := range e.hist {
+		if a != 0 {
+			m.hist[h] += a
+		}
 	}
 	return overflow
 }
