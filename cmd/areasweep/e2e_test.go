@@ -394,6 +394,9 @@ func TestRunReproducible(t *testing.T) {
 	var got [][]byte
 	for _, w := range []string{"1", "2"} {
 		out := filepath.Join(s.dir, "out"+w)
+		// The Go runtime's core count too (the default of --workers and
+		// the report's renderings in parallel): 1, then 3.
+		t.Setenv("GOMAXPROCS", map[string]string{"1": "1", "2": "3"}[w])
 		if _, se, code := runBin(t, s.args(out, "--workers", w)...); code != 0 {
 			t.Fatalf("exit %d: %s", code, se)
 		}
@@ -412,6 +415,34 @@ func TestRunReproducible(t *testing.T) {
 		if len(a) == 0 || !bytes.Equal(a, b) {
 			t.Errorf("%s differs between --workers 1 and --workers 2 (or is empty)", f)
 		}
+	}
+	// Every other file too (run.log times the phases): methods.md, the
+	// figures in every format, omitted_points.gpkg, extents.tif.
+	files := func(dir string) map[string][]byte {
+		m := map[string][]byte{}
+		filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+			if err != nil || d.IsDir() || d.Name() == "run.log" {
+				return err
+			}
+			rel, _ := filepath.Rel(dir, p)
+			m[rel], _ = os.ReadFile(p)
+			return nil
+		})
+		return m
+	}
+	f1, f2 := files(filepath.Join(s.dir, "out1")), files(filepath.Join(s.dir, "out2"))
+	for _, want := range []string{"methods.md", "omitted_points.gpkg", "extents.tif", filepath.Join("figures", "roc_curves.pdf"), filepath.Join("figures", "extent_maps.png")} {
+		if len(f1[want]) == 0 {
+			t.Errorf("%s missing or empty", want)
+		}
+	}
+	for name, a := range f1 {
+		if b, ok := f2[name]; !ok || !bytes.Equal(a, b) {
+			t.Errorf("%s differs between --workers 1 and --workers 2 (or is missing from one)", name)
+		}
+	}
+	if len(f1) != len(f2) {
+		t.Errorf("--workers 1 wrote %d files, --workers 2 wrote %d", len(f1), len(f2))
 	}
 	var any map[string]any
 	if err := json.Unmarshal(got[0], &any); err != nil {

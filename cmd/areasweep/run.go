@@ -203,28 +203,37 @@ func (o *RunOptions) validate() error {
 	if len(o.Models) == 0 && !o.ExtentsOnly {
 		return fmt.Errorf("no model given: add --model NAME=PATH (or 'model:' in the study file)")
 	}
-	seen := map[string]bool{}
+	// Names are compared ignoring case: they become column names of
+	// omitted_points.gpkg, which SQLite compares ignoring case, so "A" and
+	// "a" would fail the run only when its outputs are written.
+	seen := map[string]string{}
 	for _, m := range o.Models {
 		name, _, err := inputs.ParseNamedPath(m)
 		if err != nil {
 			return fmt.Errorf("--model %q: %w", m, err)
 		}
-		if seen[name] {
-			return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
+		if prev, ok := seen[strings.ToLower(name)]; ok {
+			if prev == name {
+				return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
+			}
+			return fmt.Errorf("--model: names %q and %q differ only in case, which output tables do not tell apart; give each model its own name", prev, name)
 		}
-		seen[name] = true
+		seen[strings.ToLower(name)] = name
 	}
 	for _, m := range o.Nulls {
 		name, _, err := inputs.ParseNamedPath(m)
 		if err != nil {
 			return fmt.Errorf("--null %q: %w", m, err)
 		}
-		if seen[name] {
-			return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
+		if prev, ok := seen[strings.ToLower(name)]; ok {
+			if prev == name {
+				return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
+			}
+			return fmt.Errorf("--null: name %q differs only in case from the model or null %q, which output tables do not tell apart; give each its own name", name, prev)
 		}
-		seen[name] = true
+		seen[strings.ToLower(name)] = name
 	}
-	if seen[report.DistanceNullName] && !o.NoDistanceNull {
+	if _, ok := seen[report.DistanceNullName]; ok && !o.NoDistanceNull {
 		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
 	}
 	for _, m := range o.Extra {

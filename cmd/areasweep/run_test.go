@@ -51,6 +51,8 @@ func TestRunFlags(t *testing.T) {
 			}
 		}, ""},
 		{"null named like a model", []string{"--model", "m=a.tif", "--null", "m=b.tif", "--occurrences", "o", "--region", "r"}, nil, "already used by a model"},
+		{"model names differing in case", []string{"--model", "A=a.tif", "--model", "a=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differ only in case"},
+		{"null named like a model but for case", []string{"--model", "m=a.tif", "--null", "M=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differs only in case"},
 		{"reserved null name", []string{"--model", "distance_null=a.tif", "--occurrences", "o", "--region", "r"}, nil, "kept for the distance-only null"},
 		{"unknown study key", []string{"--study", write(t, dir, "bad.yaml", "modle: x\n")}, nil, "modle"},
 	}
