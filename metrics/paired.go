@@ -987,23 +987,44 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 			} else {
 				b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
 			}
-			for i := 0; i < nE; i++ {
-				if ra.RatioOK[i] && rb.RatioOK[i] {
-					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
-				}
-			}
-			if ra.N > 0 {
-				for t := 0; t < nT; t++ {
-					diffs[nE+t] = append(diffs[nE+t], ra.Omission[t]-rb.Omission[t])
-				}
-			}
-			if ra.BoyceOK && rb.BoyceOK {
-				diffs[nE+nT] = append(diffs[nE+nT], ra.Boyce-rb.Boyce)
-			}
+			appendResampleDiffs(diffs, &ra, &rb)
 		}
 	}
+	finishResampled(&cmp, diffs, d.B)
+	return cmp, nil
+}
+
+// appendResampleDiffs appends one resample's paired differences a - b to
+// diffs: one list per E (partial ROC ratio, where both sides define it),
+// per threshold (omission, when a holds a presence) and the Boyce index
+// (where both define it), in that order.
+func appendResampleDiffs(diffs [][]float64, ra, rb *Values) {
+	nE, nT := len(ra.Ratio), len(ra.Omission)
+	for i := 0; i < nE; i++ {
+		if ra.RatioOK[i] && rb.RatioOK[i] {
+			diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
+		}
+	}
+	if ra.N > 0 {
+		for t := 0; t < nT; t++ {
+			diffs[nE+t] = append(diffs[nE+t], ra.Omission[t]-rb.Omission[t])
+		}
+	}
+	if ra.BoyceOK && rb.BoyceOK {
+		diffs[nE+nT] = append(diffs[nE+nT], ra.Boyce-rb.Boyce)
+	}
+}
+
+// finishResampled sets each resampled difference of cmp from its list of
+// resample differences (appendResampleDiffs) out of b resamples: the
+// full-sample difference, the SD of the resample differences and their
+// 2.5th and 97.5th percentiles (Hyndman & Fan type 7); a difference that
+// is undefined or formed on fewer than 2 resamples keeps its two values
+// and the count not formed only.
+func finishResampled(cmp *Comparison, diffs [][]float64, b int) {
+	nE, nT := len(cmp.PartialROC), len(cmp.Omission)
 	finish := func(x *Resampled, ds []float64) {
-		x.NotFormed = d.B - len(ds)
+		x.NotFormed = b - len(ds)
 		if !x.Defined || len(ds) < 2 {
 			*x = Resampled{A: x.A, B: x.B, Resamples: x.Resamples, NotFormed: x.NotFormed}
 			return
@@ -1019,5 +1040,4 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		finish(&cmp.Omission[t], diffs[nE+t])
 	}
 	finish(&cmp.Boyce, diffs[nE+nT])
-	return cmp, nil
 }

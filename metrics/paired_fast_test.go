@@ -338,37 +338,9 @@ func TestCompareMatchesReference(t *testing.T) {
 		for b2 := 0; b2 < d.B && len(common) > 0; b2++ {
 			d.fill(b2, global)
 			ra, rb := a.evalReference(on(a)), b.evalReference(on(b))
-			for i := 0; i < nE; i++ {
-				if ra.RatioOK[i] && rb.RatioOK[i] {
-					diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
-				}
-			}
-			if ra.N > 0 {
-				for i := 0; i < nT; i++ {
-					diffs[nE+i] = append(diffs[nE+i], ra.Omission[i]-rb.Omission[i])
-				}
-			}
-			if ra.BoyceOK && rb.BoyceOK {
-				diffs[nE+nT] = append(diffs[nE+nT], ra.Boyce-rb.Boyce)
-			}
+			appendResampleDiffs(diffs, &ra, &rb)
 		}
-		finish := func(x *Resampled, ds []float64) {
-			x.NotFormed = d.B - len(ds)
-			if !x.Defined || len(ds) < 2 {
-				*x = Resampled{A: x.A, B: x.B, Resamples: x.Resamples, NotFormed: x.NotFormed}
-				return
-			}
-			x.Diff = x.A - x.B
-			_, x.SD = MeanSD(ds)
-			x.Low, x.High = quantileSelect(ds, 0.025), quantileSelect(ds, 0.975)
-		}
-		for i := range cmp.PartialROC {
-			finish(&cmp.PartialROC[i], diffs[i])
-		}
-		for i := range cmp.Omission {
-			finish(&cmp.Omission[i], diffs[nE+i])
-		}
-		finish(&cmp.Boyce, diffs[nE+nT])
+		finishResampled(&cmp, diffs, d.B)
 		return cmp
 	}
 	type side struct{ m, k int }
