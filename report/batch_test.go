@@ -72,6 +72,9 @@ func handStudy(tol float64, models ...handModel) *Results {
 		for i, e := range hm.effects {
 			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
 				Position: position(e.low, e.high, tol), CommonPoints: hm.points}
+			if hm.points > 0 && hm.points < MinPairedPoints {
+				d.Position = positionTooFew
+			}
 			mv.Diffs = append(mv.Diffs, d)
 			if mv.Largest < 0 || math.Abs(e.diff) > math.Abs(mv.Diffs[mv.Largest].Diff) {
 				mv.Largest = i
@@ -95,9 +98,13 @@ func handStudy(tol float64, models ...handModel) *Results {
 		}
 		if hm.null != nil {
 			n := hm.null
+			reading := gapReading(n.low, n.high)
+			if hm.points > 0 && hm.points < MinPairedPoints {
+				reading = ReadingTooFew
+			}
 			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
-				BaseReading: gapReading(n.low, n.high),
-				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: gapReading(n.low, n.high)}}}
+				BaseReading: reading,
+				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: reading, CommonPoints: hm.points}}}
 			s.AboveNull = append(s.AboveNull, an)
 		}
 	}
@@ -148,7 +155,7 @@ func TestSummarizeCounts(t *testing.T) {
 	want := BatchCounts{Studies: 6, Succeeded: 5, Failed: 1,
 		Sensitive: 2, Robust: 2, Undetermined: 1, // alpha, eps | beta, zeta | gamma
 		Pairs: 6, PairsSensitive: 3, PairsRobust: 2, PairsUndetermined: 1,
-		NullPairs: 3, Above: 1, NotAbove: 1, Below: 1} // alpha above, beta includes 0, eps m2 below
+		NullPairs: 3, Above: 1, NotAbove: 1, Below: 1, NullDistance: 3} // alpha above, beta includes 0, eps m2 below
 	if s.Counts != want {
 		t.Errorf("counts %+v\nwant   %+v", s.Counts, want)
 	}
@@ -170,13 +177,16 @@ func TestSummarizeCounts(t *testing.T) {
 	if got := s.Models(); !slices.Equal(got, []string{"m1", "m2"}) {
 		t.Errorf("models %v", got)
 	}
-	// The median of the six effects is (0.005 + 0.01) / 2 = 0.0075, which
-	// is 0.00749... in float64 and prints as +0.007.
+	// The magnitudes of the six effects are 0.005, 0.01, 0.03, 0.06, 0.07,
+	// 0.08: median (0.03 + 0.06) / 2 = 0.045; two are negative (gamma,
+	// eps m2), four positive.
 	text := s.MethodsText()
-	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition, "Counted by study and model (6 pairs), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
-		"above the null beyond noise for 1 of 3 study-model pairs, within noise of it for 1 and below it for 1.",
+	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition,
+		"Counted by study and model (6 pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
+		"above the null beyond noise for 1 of 3 study-model pairs (against the distance-only null), within noise of it for 1 and below it for 1.",
 		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
-		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points), median +0.007 over 6 study-model pairs",
+		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points): 2 negative",
+		"and 4 positive, their magnitudes of median 0.045 over 6 study-model pairs from 5 studies.",
 		// zeta's count is unknown (no score record): 12, 40 (eps: the
 		// larger of its models'), 60, 500.
 		"The studies held 12 to 500 test points on their base extents (median 50)", hijmans2012} {
