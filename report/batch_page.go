@@ -25,8 +25,8 @@ type pageRow struct {
 	AUCBase, TestPoints, Range, Effect string
 	Interval, Verdict                  string
 	// NotJudged marks an undetermined verdict with no judged difference.
-	NotJudged bool
-	Null, NullInterval, Reading        string
+	NotJudged                   bool
+	Null, NullInterval, Reading string
 }
 
 // pageData is what the template reads.
