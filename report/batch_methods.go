@@ -31,7 +31,8 @@ const ExtentSensitiveDefinition = "Within each study, and for each model, AUC on
 	"and undetermined otherwise (an interval straddles ±T, a difference could not be formed, or it rests on fewer than 10 common test points, " +
 	"which we do not judge: our cut-off); T is the study's equivalence tolerance, and the intervals were not adjusted for the number of extents compared. " +
 	"A study counts as extent-sensitive when AUC is extent-sensitive for at least one of its models, robust when it is robust for every model, " +
-	"and undetermined otherwise. These are the verdicts each study's own analysis gives (results.json, sensitivity.verdicts); " +
+	"and undetermined otherwise, so a study with more models or extents has more chances to count as extent-sensitive and fewer to count as robust. " +
+	"These are the verdicts each study's own analysis gives (results.json, sensitivity.verdicts); " +
 	"the counts below add them up and describe these studies: no test across studies is made, and they are no estimate for other studies."
 
 // methodsSections returns the summary's methods text.
@@ -49,7 +50,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	methods += " " + s.independenceSentence()
 	if c.NullPairs > 0 {
 		methods += " Where a study scored a null, each model's AUC minus the null's on the base extent was read against 0 with its 95% interval from the placements " +
-			"(the distance-only null of Hijmans 2012 when scored, else the study's first null): above when the interval lies wholly above 0, below when wholly below, " +
+			"(the distance-only null, minus the distance to the nearest training record, after Hijmans 2012, when scored; else the study's first null): above when the interval lies wholly above 0, below when wholly below, " +
 			fmt.Sprintf("not read on fewer than %d common test points (our cut-off). Each reading is a test within its study, not adjusted for the number of models or studies; ", MinPairedPoints) +
 			"the counts add them up and are no test across studies."
 	}
@@ -189,7 +190,7 @@ func (s *BatchSummary) effectSentence() string {
 	}
 	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (AUC lower on the extent than on the base extent, on their common test points)%s and %d positive, "+
 		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
-		"Each is the largest of its own study's differences, over extents that differ between studies, and the pairs of one study share its test points: "+
+		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
 		"a description of these studies, not an estimate for others.",
 		where(lo), where(hi), neg, zeroText, pos, f3(med), len(defined), len(studies), ies(len(studies)), fewText)
 }

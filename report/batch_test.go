@@ -533,6 +533,11 @@ func TestSummaryNotJudged(t *testing.T) {
 		"Of these, 1 rests on fewer than 10 common test points and was not judged (our cut-off).",
 		"above the null beyond noise for 1 of 2 study-model pairs (against the distance-only null), within noise of it for 0 and below it for 0; 1 rests on fewer than 10 common test points and was not read (our cut-off).",
 		"a difference on fewer than 10 common test points is not judged (our cut-off).",
+		// What the verdicts rest on, said where a reader weighs the counts.
+		"the intervals were not adjusted for the number of extents compared",
+		"a study with more models or extents has more chances to count as extent-sensitive and fewer to count as robust",
+		"no test across studies is made",
+		"Each reading is a test within its study, not adjusted for the number of models or studies",
 	} {
 		if !strings.Contains(text, want) {
 			t.Errorf("methods text lacks %q:\n%s", want, text)
