@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // StudyResult is one study of a batch as the summary across studies sees
@@ -60,6 +62,21 @@ type StudySummary struct {
 	Models     []string
 	BaseExtent string
 	Extents    int // scored extents
+	// StandIn is why the study's base extent was left out when another
+	// extent (BaseExtent, the first scored one) stands in for it as the
+	// reference every difference is taken from; "" when BaseExtent is the
+	// base extent itself.
+	StandIn string
+	// NotJudged is true when no model of the study has an AUC difference
+	// from BaseExtent on MinPairedPoints or more common test points (none
+	// could be formed, or every one rests on fewer): the study's verdict
+	// is undetermined without any difference having been judged.
+	NotJudged bool
+	// BaseAreaKm2 is the area of BaseExtent (Results.Extents).
+	BaseAreaKm2 float64
+	// Occurrences is the SHA-256 of the study's occurrence file
+	// (Results.Inputs), "" when not recorded.
+	Occurrences string
 }
 
 // BatchRow is one model of one study: its AUC across the study's scored
@@ -93,19 +110,27 @@ type BatchRow struct {
 	Effect                float64
 	EffectLow, EffectHigh float64
 	// EffectPoints is the number of test points the extent effect rests
-	// on (those both extents hold).
+	// on (those both extents hold); EffectJudged is false when they are
+	// fewer than MinPairedPoints (the difference is reported, not judged).
 	EffectPoints int
+	EffectJudged bool
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
 	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
 	Tolerance float64
 	Verdict   Judgement
+	// Judged is true when at least one of the model's AUC differences
+	// from the base extent rests on MinPairedPoints or more common test
+	// points (so that its verdict was reached on a judged difference).
+	Judged bool
 	// Null names the null the model is compared with on the base extent
 	// (see baseNullComparison); "" when the study scored none. NullDiff
 	// is AUC of the model minus the null's on the test points both score,
 	// with its 95% interval from the placements, and NullReading its
-	// reading (ReadingAbove, ReadingNotAbove, ReadingBelow or
-	// ReadingUndefined).
+	// reading (ReadingAbove, ReadingNotAbove, ReadingBelow, ReadingTooFew
+	// or ReadingUndefined); NullKind is the null's kind (NullDistance for
+	// the distance-only null).
 	Null              string
+	NullKind          string
 	NullDefined       bool
 	NullDiff          float64
 	NullLow, NullHigh float64
@@ -130,13 +155,18 @@ type BatchVerdict struct {
 type BatchCounts struct {
 	// Studies given, with results, failed.
 	Studies, Succeeded, Failed int
-	// Studies with results, by their AUC verdict.
-	Sensitive, Robust, Undetermined int
-	// Study x model pairs, by the model's AUC verdict.
-	Pairs, PairsSensitive, PairsRobust, PairsUndetermined int
+	// Studies with results, by their AUC verdict; NotJudged counts the
+	// undetermined ones with no judged difference (StudySummary.NotJudged)
+	// and StandIn those whose base extent was replaced by another.
+	Sensitive, Robust, Undetermined, NotJudged, StandIn int
+	// Study x model pairs, by the model's AUC verdict; PairsNotJudged
+	// counts the undetermined pairs with no judged difference.
+	Pairs, PairsSensitive, PairsRobust, PairsUndetermined, PairsNotJudged int
 	// Study x model pairs compared with a null on the base extent, by
-	// reading (undefined ones are in NullPairs only).
-	NullPairs, Above, NotAbove, Below int
+	// reading: TooFew on fewer than MinPairedPoints common test points
+	// (not read), the rest of NullPairs undefined. NullDistance counts the
+	// pairs whose null is the distance-only null.
+	NullPairs, Above, NotAbove, Below, TooFew, NullDistance int
 }
 
 // Summarize builds the summary across studies. Studies without results
@@ -184,6 +214,13 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 		}
 		sens := r.Sensitivity
 		ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
+		ss.StandIn = standInReason(r)
+		ss.Occurrences = occurrenceHash(r)
+		for _, e := range r.Extents {
+			if e.ID == sens.BaseExtent {
+				ss.BaseAreaKm2 = e.AreaKm2
+			}
+		}
 		ss.Models = append(ss.Models, sens.ModelNames...)
 		ss.Verdict = JudgementUndetermined
 		for _, v := range sens.Verdicts {
@@ -191,15 +228,25 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 				ss.Verdict = v.Verdict
 			}
 		}
-		s.Studies = append(s.Studies, ss)
 		s.Counts.add(ss.Verdict, &s.Counts.Sensitive, &s.Counts.Robust, &s.Counts.Undetermined)
+		if ss.StandIn != "" {
+			s.Counts.StandIn++
+		}
+		judged := false
 		for _, model := range sens.ModelNames {
 			row := studyRow(r, st.ID, model)
 			s.Rows = append(s.Rows, row)
+			judged = judged || row.Judged
 			s.Counts.Pairs++
 			s.Counts.add(row.Verdict, &s.Counts.PairsSensitive, &s.Counts.PairsRobust, &s.Counts.PairsUndetermined)
+			if row.Verdict == JudgementUndetermined && !row.Judged {
+				s.Counts.PairsNotJudged++
+			}
 			if row.Null != "" {
 				s.Counts.NullPairs++
+				if row.NullKind == NullDistance {
+					s.Counts.NullDistance++
+				}
 				switch row.NullReading {
 				case ReadingAbove:
 					s.Counts.Above++
@@ -207,12 +254,19 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 					s.Counts.NotAbove++
 				case ReadingBelow:
 					s.Counts.Below++
+				case ReadingTooFew:
+					s.Counts.TooFew++
 				}
 			}
 			if !slices.Contains(s.Tolerances, row.Tolerance) {
 				s.Tolerances = append(s.Tolerances, row.Tolerance)
 			}
 		}
+		if ss.Verdict == JudgementUndetermined && !judged {
+			ss.NotJudged = true
+			s.Counts.NotJudged++
+		}
+		s.Studies = append(s.Studies, ss)
 		for _, mv := range sens.ModelVerdicts {
 			s.Verdicts = append(s.Verdicts, batchVerdict(st.ID, mv))
 		}
@@ -261,11 +315,14 @@ func studyRow(r *Results, id, model string) BatchRow {
 		}
 		row.Tolerance, row.Verdict = mv.Tolerance, mv.Verdict
 		row.AUCBase, row.AUCBaseDefined = mv.BaseValue, mv.BaseDefined
+		for _, d := range mv.Diffs {
+			row.Judged = row.Judged || (d.Defined && d.Position != positionTooFew)
+		}
 		if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 			d := mv.Diffs[mv.Largest]
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
-			row.EffectPoints = d.CommonPoints
+			row.EffectPoints, row.EffectJudged = d.CommonPoints, d.Position != positionTooFew
 		}
 	}
 	for _, sc := range r.Scores {
@@ -274,7 +331,7 @@ func studyRow(r *Results, id, model string) BatchRow {
 		}
 	}
 	if an := baseNullComparison(r, model); an != nil {
-		row.Null = an.Null
+		row.Null, row.NullKind = an.Null, an.NullKind
 		if g := an.gap(an.BaseExtent); g != nil && g.Defined {
 			row.NullDefined = true
 			row.NullDiff, row.NullLow, row.NullHigh = g.Diff, g.Low, g.High
@@ -282,6 +339,71 @@ func studyRow(r *Results, id, model string) BatchRow {
 		}
 	}
 	return row
+}
+
+// standInReason is why the study's base extent was left out when another
+// extent stands in for it: the reason its scores gave when they all gave
+// the same one ("no test points inside this extent"), else the reason the
+// analysis recorded; "" when the base extent itself is the reference.
+func standInReason(r *Results) string {
+	sens := r.Sensitivity
+	if sens.BaseExtent == vocab.BaseID {
+		return ""
+	}
+	why := ""
+	for _, u := range sens.Unscored {
+		if u.Extent != vocab.BaseID {
+			continue
+		}
+		if why != "" && why != u.Reason {
+			why = ""
+			break
+		}
+		why = u.Reason
+	}
+	if why == "" {
+		for _, e := range sens.SkippedExtents {
+			if e.ID == vocab.BaseID {
+				why = e.Reason
+			}
+		}
+	}
+	if why == "" {
+		why = "not scored"
+	}
+	return why
+}
+
+// occurrenceHash is the SHA-256 of the study's occurrence file, "" when
+// the results do not record it.
+func occurrenceHash(r *Results) string {
+	for _, in := range r.Inputs {
+		if in.Role == "occurrences" {
+			return in.SHA256
+		}
+	}
+	return ""
+}
+
+// SharedOccurrences lists the groups of studies (ids in study order)
+// whose occurrence files are byte-identical (same SHA-256): their
+// verdicts rest on the same records and are not independent of one
+// another. Groups are in the order of their first study.
+func (s *BatchSummary) SharedOccurrences() [][]string {
+	var groups [][]string
+	at := map[string]int{}
+	for _, st := range s.Studies {
+		if !st.OK || st.Occurrences == "" {
+			continue
+		}
+		if i, ok := at[st.Occurrences]; ok {
+			groups[i] = append(groups[i], st.ID)
+			continue
+		}
+		at[st.Occurrences] = len(groups)
+		groups = append(groups, []string{st.ID})
+	}
+	return slices.DeleteFunc(groups, func(g []string) bool { return len(g) < 2 })
 }
 
 // baseNullComparison picks the null a model is compared with in the

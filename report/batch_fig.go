@@ -44,12 +44,25 @@ func effectFigure(s *BatchSummary) (figure, bool) {
 	}
 	h, labels := effectLayout(len(order))
 	f := figure{Name: EffectFigure, Title: "Extent effect across studies", W: twoColumns, H: h}
-	f.Caption = "Each row is a study, sorted by its extent effect (the model with the effect of largest magnitude sets the order), smallest at the bottom. " +
+	f.Caption = "Each row is a study, sorted by its extent effect (the model with the effect of largest magnitude sets the order), most negative at the bottom. " +
 		"A mark is a model's paired AUC difference from the study's base extent of largest magnitude, on the test points both extents hold; " +
-		"the bar is its 95% interval from the per-point placements."
+		"the bar is its 95% interval from the per-point placements. The extents differ between studies (each study's own region and buffers)."
+	if ids := s.standInIDs(); len(ids) > 0 {
+		f.Caption += " In " + joinList(ids) + " the base extent could not be scored and the first scored extent stands in for it (summary.csv, base_extent)."
+	}
 	if len(s.Tolerances) == 1 {
-		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s; a bar wholly outside it makes the model's AUC extent-sensitive in that study, "+
-			"unless it rests on fewer than %d common test points (not judged).", fmtG(s.Tolerances[0]), MinPairedPoints)
+		whose := "the studies' tolerance"
+		if s.Tolerances[0] == DefaultToleranceAUC {
+			whose = "our default tolerance, not a published standard"
+		}
+		f.Caption += fmt.Sprintf(" Shaded: the equivalence band ±%s (%s); a bar wholly outside it makes the model's AUC extent-sensitive in that study, "+
+			"unless it rests on fewer than %d common test points (our cut-off: not judged). A bar across or inside the band does not settle the verdict, "+
+			"which rests on every extent of the study (see the table).", fmtG(s.Tolerances[0]), whose, MinPairedPoints)
+	} else {
+		f.Caption += fmt.Sprintf(" The studies used different tolerances, so no band is drawn; an effect on fewer than %d common test points is not judged (our cut-off).", MinPairedPoints)
+	}
+	if few := s.fewPointEffects(); len(few) > 0 {
+		f.Caption += fmt.Sprintf(" Drawn but not judged, on fewer than %d common test points: %s.", MinPairedPoints, joinList(few))
 	}
 	if labels {
 		f.Caption += " n: the study's test points on its base extent; an effect rests on those the other extent holds too (summary.csv, auc_diff_points)."
@@ -74,6 +87,30 @@ func effectFigure(s *BatchSummary) (figure, bool) {
 	return f, true
 }
 
+// standInIDs lists the studies whose base extent was replaced by another
+// as the reference (StudySummary.StandIn).
+func (s *BatchSummary) standInIDs() []string {
+	var ids []string
+	for _, st := range s.Studies {
+		if st.OK && st.StandIn != "" {
+			ids = append(ids, st.ID)
+		}
+	}
+	return ids
+}
+
+// fewPointEffects lists the drawn extent effects that rest on fewer than
+// MinPairedPoints common test points, as "study (model, N)".
+func (s *BatchSummary) fewPointEffects() []string {
+	var out []string
+	for _, r := range s.Rows {
+		if r.EffectDefined && !r.EffectJudged {
+			out = append(out, fmt.Sprintf("%s (%s, %d)", r.Study, r.Model, r.EffectPoints))
+		}
+	}
+	return out
+}
+
 // xErrPoints pairs points with asymmetric horizontal error offsets.
 type xErrPoints struct {
 	plotter.XYs
@@ -88,8 +125,8 @@ func effectPlot(s *BatchSummary, order []string, labels bool, w vg.Length) (*plo
 	for i, id := range order {
 		row[id] = i
 	}
-	p := newPlot("AUC: largest paired difference from the base extent, per study", w)
-	p.X.Label.Text = "AUC difference (extent − base extent)"
+	p := newPlot("AUC: paired difference from the base extent of largest magnitude, per study and model", w)
+	p.X.Label.Text = "AUC difference (extent − base extent, on common test points)"
 	p.Y.Label.Text = "studies, sorted by effect"
 	// Inside a row, the study's marks sit in slots 0.25 apart (our
 	// choice), centred on the row: a study with one model has its mark on

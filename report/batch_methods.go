@@ -1,7 +1,9 @@
 package report
 
 import (
+	"cmp"
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 )
@@ -22,13 +24,16 @@ const delong1988 = "DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Com
 // ExtentSensitiveDefinition states what the summary counts as an
 // extent-sensitive study: the per-study verdicts of Analyze, added up.
 const ExtentSensitiveDefinition = "Within each study, and for each model, AUC on every extent was compared with AUC on the study's base extent " +
-	"by the paired difference on the test points both extents hold, with a 95% interval from the per-point placements (DeLong et al. 1988). " +
+	"(or, where the base extent could not be scored, on the first scored extent, which stands in for it as the reference) " +
+	"by the paired difference on the test points both extents hold, with a normal 95% interval from the per-point placements " +
+	"(the presence component of the variance of DeLong et al. 1988: an extent's cells are its whole background, not a sample). " +
 	"A model's AUC is extent-sensitive when at least one of these intervals lies wholly beyond ±T, robust when every interval lies within ±T, " +
-	"and undetermined otherwise (too few test points to tell, or no difference could be formed); T is the study's equivalence tolerance, " +
-	"and a difference on fewer than 10 common test points is not judged (our cut-off). " +
+	"and undetermined otherwise (an interval straddles ±T, a difference could not be formed, or it rests on fewer than 10 common test points, " +
+	"which we do not judge: our cut-off); T is the study's equivalence tolerance, and the intervals were not adjusted for the number of extents compared. " +
 	"A study counts as extent-sensitive when AUC is extent-sensitive for at least one of its models, robust when it is robust for every model, " +
-	"and undetermined otherwise. These are the verdicts each study's own analysis gives (results.json, sensitivity.verdicts); " +
-	"the counts below add them up, and no test across studies is made."
+	"and undetermined otherwise, so a study with more models or extents has more chances to count as extent-sensitive and fewer to count as robust. " +
+	"These are the verdicts each study's own analysis gives (results.json, sensitivity.verdicts); " +
+	"the counts below add them up and describe these studies: no test across studies is made, and they are no estimate for other studies."
 
 // methodsSections returns the summary's methods text.
 func (s *BatchSummary) methodsSections() []textSection {
@@ -37,17 +42,31 @@ func (s *BatchSummary) methodsSections() []textSection {
 		sw = "areasweep"
 	}
 	c := s.Counts
-	methods := fmt.Sprintf("Each of the %d stud%s of the batch was run with %s into its own folder, with its own occurrence records, models and family of evaluation extents. ",
+	methods := fmt.Sprintf("Each of the %d stud%s of the batch was run with %s into its own folder, with the occurrence records, models, region and extent settings of its row of the study table. ",
 		c.Studies, ies(c.Studies), sw) + ExtentSensitiveDefinition + " " + s.toleranceSentence() +
-		" The extent effect of a model is the paired AUC difference from the base extent of largest magnitude, with its interval."
+		" The extent effect of a model is the paired AUC difference from the base extent of largest magnitude, with its interval; " +
+		"each study's extents are built from its own region, points and buffers, so the extent effects of two studies compare different extents, " +
+		"and an extent of one name (region_50km, hull) differs between studies."
+	methods += " " + s.independenceSentence()
 	if c.NullPairs > 0 {
 		methods += " Where a study scored a null, each model's AUC minus the null's on the base extent was read against 0 with its 95% interval from the placements " +
-			"(the distance-only null of Hijmans 2012 when scored, else the study's first null): above when the interval lies wholly above 0."
+			"(the distance-only null, minus the distance to the nearest training record, after Hijmans 2012, when scored; else the study's first null): above when the interval lies wholly above 0, below when wholly below, " +
+			fmt.Sprintf("not read on fewer than %d common test points (our cut-off). Each reading is a test within its study, not adjusted for the number of models or studies; ", MinPairedPoints) +
+			"the counts add them up and are no test across studies."
 	}
 	results := []string{s.CountSentence()}
+	if w := s.notJudgedSentence(); w != "" {
+		results = append(results, w)
+	}
+	if w := s.standInSentence(); w != "" {
+		results = append(results, w)
+	}
 	if c.Pairs > c.Succeeded {
-		results = append(results, fmt.Sprintf("Counted by study and model (%d pairs), AUC was extent-sensitive for %d, robust for %d and undetermined for %d.",
-			c.Pairs, c.PairsSensitive, c.PairsRobust, c.PairsUndetermined))
+		results = append(results, fmt.Sprintf("Counted by study and model (%d pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for %d, robust for %d and undetermined for %d%s.",
+			c.Pairs, c.PairsSensitive, c.PairsRobust, c.PairsUndetermined, notJudgedTail(c.PairsNotJudged, c.PairsUndetermined)))
+	}
+	if a := s.areaSentence(); a != "" {
+		results = append(results, a)
 	}
 	if n := s.testPointsSentence(); n != "" {
 		results = append(results, n)
@@ -56,8 +75,8 @@ func (s *BatchSummary) methodsSections() []textSection {
 		results = append(results, e)
 	}
 	if c.NullPairs > 0 {
-		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pairs, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, c.NotAbove, c.Below, undefinedTail(c.NullPairs-c.Above-c.NotAbove-c.Below)))
+		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pairs%s, within noise of it for %d and below it for %d%s.",
+			c.Above, c.NullPairs, s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -89,8 +108,8 @@ func (s *BatchSummary) CountSentence() string {
 	if c.Succeeded == 0 {
 		return fmt.Sprintf("None of the %d stud%s gave results.", c.Studies, ies(c.Studies))
 	}
-	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d.",
-		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined)
+	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d%s.",
+		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.Undetermined))
 	if c.Failed > 0 {
 		out += fmt.Sprintf(" %d further stud%s failed to run and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 	}
@@ -114,12 +133,19 @@ func (s *BatchSummary) toleranceSentence() string {
 	return fmt.Sprintf("The studies used T = %s (the default, %s, is our own choice, not a published standard).", joinList(ts), fmtG(DefaultToleranceAUC))
 }
 
-// effectSentence describes the spread of the extent effects.
+// effectSentence describes the spread of the extent effects: their range
+// (signed), how many are negative and positive, the median of their
+// magnitudes, and how many rest on fewer than MinPairedPoints common test
+// points. The effects are maxima over each study's own extents, which
+// differ between studies, and the pairs of one study share their test
+// points: a description of these studies, not an estimate for others.
 func (s *BatchSummary) effectSentence() string {
 	var defined []BatchRow
+	studies := map[string]bool{}
 	for _, r := range s.Rows {
 		if r.EffectDefined {
 			defined = append(defined, r)
+			studies[r.Study] = true
 		}
 	}
 	if len(defined) == 0 {
@@ -127,23 +153,46 @@ func (s *BatchSummary) effectSentence() string {
 	}
 	lo := slices.MinFunc(defined, func(a, b BatchRow) int { return compareEffect(a, b) })
 	hi := slices.MaxFunc(defined, func(a, b BatchRow) int { return compareEffect(a, b) })
-	vals := make([]float64, len(defined))
+	mags := make([]float64, len(defined))
+	neg, pos, zero, few := 0, 0, 0, 0
 	for i, r := range defined {
-		vals[i] = r.Effect
+		mags[i] = math.Abs(r.Effect)
+		switch {
+		case r.Effect < 0:
+			neg++
+		case r.Effect > 0:
+			pos++
+		default:
+			zero++
+		}
+		if !r.EffectJudged {
+			few++
+		}
 	}
-	slices.Sort(vals)
-	med := vals[len(vals)/2]
-	if len(vals)%2 == 0 {
-		med = (vals[len(vals)/2-1] + vals[len(vals)/2]) / 2
+	slices.Sort(mags)
+	med := mags[len(mags)/2]
+	if len(mags)%2 == 0 {
+		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
 	where := func(r BatchRow) string {
 		return fmt.Sprintf("%s (study %s, model %s, extent %s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, r.EffectPoints, plural(r.EffectPoints))
 	}
-	if len(defined) == 1 {
-		return "The extent effect was " + where(lo) + "."
+	fewText := ""
+	if few > 0 {
+		fewText = fmt.Sprintf(" Of these, %d rest%s on fewer than %d common test points and %s not judged (our cut-off).", few, map[bool]string{true: "s"}[few == 1], MinPairedPoints, map[bool]string{true: "was", false: "were"}[few == 1])
 	}
-	return fmt.Sprintf("The extent effects ran from %s to %s, median %s over %d study-model pairs (a description of these studies, not an estimate for others).",
-		where(lo), where(hi), signed3(med), len(defined))
+	if len(defined) == 1 {
+		return "The extent effect was " + where(lo) + "." + strings.Replace(fewText, " Of these, 1 rests", " It rests", 1)
+	}
+	zeroText := ""
+	if zero > 0 {
+		zeroText = fmt.Sprintf(", %d zero", zero)
+	}
+	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (AUC lower on the extent than on the base extent, on their common test points)%s and %d positive, "+
+		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
+		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
+		"a description of these studies, not an estimate for others.",
+		where(lo), where(hi), neg, zeroText, pos, f3(med), len(defined), len(studies), ies(len(studies)), fewText)
 }
 
 // testPointsSentence gives the span of the studies' test points on their
@@ -171,8 +220,8 @@ func (s *BatchSummary) testPointsSentence() string {
 	if len(ns)%2 == 0 {
 		med = float64(ns[len(ns)/2-1]+ns[len(ns)/2]) / 2
 	}
-	return fmt.Sprintf("The studies held %d to %d test points on their base extents (median %s); the fewer the points, the wider a difference's interval, "+
-		"and a difference on fewer than %d common test points is not judged.", ns[0], ns[len(ns)-1], fmtG(med), MinPairedPoints)
+	return fmt.Sprintf("The studies held %d to %d test points on their base extents (median %s); other things equal, the fewer the points, the wider a difference's interval, "+
+		"and a difference on fewer than %d common test points is not judged (our cut-off).", ns[0], ns[len(ns)-1], fmtG(med), MinPairedPoints)
 }
 
 // compareEffect orders rows by effect, then study and model.
@@ -188,12 +237,111 @@ func compareEffect(a, b BatchRow) int {
 	return strings.Compare(a.Model, b.Model)
 }
 
-// undefinedTail says how many comparisons could not be formed.
-func undefinedTail(n int) string {
-	if n <= 0 {
+// nullTail says how many readings against a null were not made: tooFew
+// on fewer than MinPairedPoints common test points, undefined where no
+// difference could be formed.
+func nullTail(tooFew, undefined int) string {
+	out := ""
+	if tooFew > 0 {
+		out += fmt.Sprintf("; %d rest%s on fewer than %d common test points and %s not read (our cut-off)", tooFew, map[bool]string{true: "s"}[tooFew == 1], MinPairedPoints, map[bool]string{true: "was", false: "were"}[tooFew == 1])
+	}
+	if undefined > 0 {
+		out += fmt.Sprintf("; on %d no difference could be formed", undefined)
+	}
+	return out
+}
+
+// nullKindTail names the nulls behind the null counts when they are not
+// all the distance-only null.
+func (s *BatchSummary) nullKindTail() string {
+	c := s.Counts
+	switch {
+	case c.NullDistance == c.NullPairs:
+		return " (against the distance-only null)"
+	case c.NullDistance == 0:
+		return " (against each study's first null; none scored the distance-only null)"
+	}
+	return fmt.Sprintf(" (against the distance-only null in %d, against the study's first null in %d: different nulls)", c.NullDistance, c.NullPairs-c.NullDistance)
+}
+
+// notJudgedTail says how many of the undetermined verdicts rest on no
+// judged difference at all.
+func notJudgedTail(notJudged, undetermined int) string {
+	switch {
+	case notJudged == 0:
+		return ""
+	case notJudged == undetermined && notJudged == 1:
+		return fmt.Sprintf(", which was not judged (no difference from the base extent on %d or more common test points, our cut-off)", MinPairedPoints)
+	case notJudged == undetermined:
+		return fmt.Sprintf(", none of which was judged (no difference from the base extent on %d or more common test points, our cut-off)", MinPairedPoints)
+	}
+	return fmt.Sprintf(", %d of which %s not judged (no difference from the base extent on %d or more common test points, our cut-off)", notJudged, map[bool]string{true: "was", false: "were"}[notJudged == 1], MinPairedPoints)
+}
+
+// notJudgedSentence names the studies counted undetermined without any
+// judged difference, "" when there are none.
+func (s *BatchSummary) notJudgedSentence() string {
+	var ids []string
+	for _, st := range s.Studies {
+		if st.OK && st.NotJudged {
+			ids = append(ids, st.ID)
+		}
+	}
+	if len(ids) == 0 {
 		return ""
 	}
-	return fmt.Sprintf("; on %d the difference could not be formed or rests on fewer than %d test points (not read)", n, MinPairedPoints)
+	return fmt.Sprintf("Not judged, so counted neither robust nor extent-sensitive: %s.", joinList(ids))
+}
+
+// standInSentence names the studies whose base extent could not be scored
+// and the extent that stood in for it, "" when there are none.
+func (s *BatchSummary) standInSentence() string {
+	var items []string
+	for _, st := range s.Studies {
+		if st.OK && st.StandIn != "" {
+			items = append(items, fmt.Sprintf("%s (%s stands in; base extent left out: %s)", st.ID, st.BaseExtent, st.StandIn))
+		}
+	}
+	if len(items) == 0 {
+		return ""
+	}
+	n := len(items)
+	return fmt.Sprintf("In %d stud%s the base extent could not be scored and the first scored extent is the reference for %s differences, test points and null comparison "+
+		"(\"base extent\" above and in summary.csv's base_extent means that extent for %s): %s.",
+		n, ies(n), map[bool]string{true: "its", false: "their"}[n == 1], map[bool]string{true: "it", false: "them"}[n == 1], joinList(items))
+}
+
+// areaSentence gives the span of the reference extents' areas, "" with
+// fewer than two studies.
+func (s *BatchSummary) areaSentence() string {
+	var ok []StudySummary
+	for _, st := range s.Studies {
+		if st.OK && st.BaseAreaKm2 > 0 {
+			ok = append(ok, st)
+		}
+	}
+	if len(ok) < 2 {
+		return ""
+	}
+	lo := slices.MinFunc(ok, func(a, b StudySummary) int { return cmp.Compare(a.BaseAreaKm2, b.BaseAreaKm2) })
+	hi := slices.MaxFunc(ok, func(a, b StudySummary) int { return cmp.Compare(a.BaseAreaKm2, b.BaseAreaKm2) })
+	return fmt.Sprintf("The base extents ran from %s km² (%s) to %s km² (%s).", fmtArea(lo.BaseAreaKm2), lo.ID, fmtArea(hi.BaseAreaKm2), hi.ID)
+}
+
+// independenceSentence says how far the studies are independent of one
+// another: not where they share an occurrence file (same SHA-256), and
+// not known beyond the files.
+func (s *BatchSummary) independenceSentence() string {
+	out := "Studies are independent of one another only as far as their data are; the summary compares the occurrence files only (by SHA-256), " +
+		"and studies with different files may still share records, ranges or models."
+	var groups []string
+	for _, g := range s.SharedOccurrences() {
+		groups = append(groups, joinList(g))
+	}
+	if len(groups) > 0 {
+		out += fmt.Sprintf(" These studies use one and the same occurrence file, so their verdicts rest on the same test points and are not independent: %s.", strings.Join(groups, "; "))
+	}
+	return out
 }
 
 // ies is the plural ending of "study".

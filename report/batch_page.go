@@ -24,7 +24,9 @@ type pageRow struct {
 	Extents                            int
 	AUCBase, TestPoints, Range, Effect string
 	Interval, Verdict                  string
-	Null, NullInterval, Reading        string
+	// NotJudged marks an undetermined verdict with no judged difference.
+	NotJudged                   bool
+	Null, NullInterval, Reading string
 }
 
 // pageData is what the template reads.
@@ -84,7 +86,14 @@ func (s *BatchSummary) page(svg []byte) ([]byte, error) {
 			d.NoEffect = append(d.NoEffect, st.ID)
 		}
 		for ; next < len(s.Rows) && s.Rows[next].Study == st.ID; next++ {
-			d.Rows = append(d.Rows, pageRowOf(s.Rows[next], studyLink(st.Report)))
+			pr := pageRowOf(s.Rows[next], studyLink(st.Report))
+			if st.StandIn != "" {
+				pr.Base += " (stands in for the base extent: " + st.StandIn + ")"
+			}
+			if pr.Verdict == string(JudgementUndetermined) && !s.Rows[next].Judged {
+				pr.NotJudged = true
+			}
+			d.Rows = append(d.Rows, pr)
 		}
 	}
 	var b bytes.Buffer

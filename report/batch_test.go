@@ -72,6 +72,9 @@ func handStudy(tol float64, models ...handModel) *Results {
 		for i, e := range hm.effects {
 			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
 				Position: position(e.low, e.high, tol), CommonPoints: hm.points}
+			if hm.points > 0 && hm.points < MinPairedPoints {
+				d.Position = positionTooFew
+			}
 			mv.Diffs = append(mv.Diffs, d)
 			if mv.Largest < 0 || math.Abs(e.diff) > math.Abs(mv.Diffs[mv.Largest].Diff) {
 				mv.Largest = i
@@ -95,9 +98,13 @@ func handStudy(tol float64, models ...handModel) *Results {
 		}
 		if hm.null != nil {
 			n := hm.null
+			reading := gapReading(n.low, n.high)
+			if hm.points > 0 && hm.points < MinPairedPoints {
+				reading = ReadingTooFew
+			}
 			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
-				BaseReading: gapReading(n.low, n.high),
-				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: gapReading(n.low, n.high)}}}
+				BaseReading: reading,
+				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: reading, CommonPoints: hm.points}}}
 			s.AboveNull = append(s.AboveNull, an)
 		}
 	}
@@ -148,7 +155,7 @@ func TestSummarizeCounts(t *testing.T) {
 	want := BatchCounts{Studies: 6, Succeeded: 5, Failed: 1,
 		Sensitive: 2, Robust: 2, Undetermined: 1, // alpha, eps | beta, zeta | gamma
 		Pairs: 6, PairsSensitive: 3, PairsRobust: 2, PairsUndetermined: 1,
-		NullPairs: 3, Above: 1, NotAbove: 1, Below: 1} // alpha above, beta includes 0, eps m2 below
+		NullPairs: 3, Above: 1, NotAbove: 1, Below: 1, NullDistance: 3} // alpha above, beta includes 0, eps m2 below
 	if s.Counts != want {
 		t.Errorf("counts %+v\nwant   %+v", s.Counts, want)
 	}
@@ -170,13 +177,16 @@ func TestSummarizeCounts(t *testing.T) {
 	if got := s.Models(); !slices.Equal(got, []string{"m1", "m2"}) {
 		t.Errorf("models %v", got)
 	}
-	// The median of the six effects is (0.005 + 0.01) / 2 = 0.0075, which
-	// is 0.00749... in float64 and prints as +0.007.
+	// The magnitudes of the six effects are 0.005, 0.01, 0.03, 0.06, 0.07,
+	// 0.08: median (0.03 + 0.06) / 2 = 0.045; two are negative (gamma,
+	// eps m2), four positive.
 	text := s.MethodsText()
-	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition, "Counted by study and model (6 pairs), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
-		"above the null beyond noise for 1 of 3 study-model pairs, within noise of it for 1 and below it for 1.",
+	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition,
+		"Counted by study and model (6 pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
+		"above the null beyond noise for 1 of 3 study-model pairs (against the distance-only null), within noise of it for 1 and below it for 1.",
 		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
-		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points), median +0.007 over 6 study-model pairs",
+		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points): 2 negative",
+		"and 4 positive, their magnitudes of median 0.045 over 6 study-model pairs from 5 studies.",
 		// zeta's count is unknown (no score record): 12, 40 (eps: the
 		// larger of its models'), 60, 500.
 		"The studies held 12 to 500 test points on their base extents (median 50)", hijmans2012} {
@@ -426,5 +436,139 @@ func TestEffectLayout(t *testing.T) {
 		if math.Abs(float64(h)/mm-c.hMM) > 1e-9 || labels != c.labels {
 			t.Errorf("n=%d: height %.2f mm labels %v, want %.0f mm labels %v", c.n, float64(h)/mm, labels, c.hMM, c.labels)
 		}
+	}
+}
+
+// standIn rewrites a hand-built study as one whose base extent held no
+// test point: ref stands in as the reference (Sensitivity.BaseExtent, the
+// scores, verdicts and null gaps named "base" are renamed) and the base's
+// scores are recorded as unscored for reason.
+func standIn(r *Results, ref, reason string) *Results {
+	s := r.Sensitivity
+	s.BaseExtent = ref
+	for i := range r.Scores {
+		if r.Scores[i].Extent == "base" {
+			r.Scores[i].Extent = ref
+		}
+	}
+	for i := range s.ModelVerdicts {
+		s.ModelVerdicts[i].Base = ref
+	}
+	for i := range s.AboveNull {
+		s.AboveNull[i].BaseExtent = ref
+		for j := range s.AboveNull[i].Gaps {
+			if s.AboveNull[i].Gaps[j].Extent == "base" {
+				s.AboveNull[i].Gaps[j].Extent = ref
+			}
+		}
+	}
+	for _, m := range s.ModelNames {
+		s.Unscored = append(s.Unscored, UnscoredScore{Model: m, Extent: "base", Reason: reason})
+	}
+	r.Extents = append(r.Extents, Extent{ID: ref, AreaKm2: 10375})
+	return r
+}
+
+// withOccurrences records the SHA-256 of a study's occurrence file.
+func withOccurrences(r *Results, sha string) *Results {
+	r.Inputs = append(r.Inputs, Input{Role: "occurrences", Path: "/x/occ.csv", SHA256: sha})
+	return r
+}
+
+// oddBatch is a batch of the cases a reader can misread, with T = 0.02:
+//
+//	few     6 test points: its difference -0.24 (-0.37..-0.11) lies wholly
+//	        beyond ±T but rests on 6 < 10 common points: not judged,
+//	        undetermined; its null reading too_few
+//	nobase  the base held no test point: region_50km stands in; m1
+//	        -0.16 (-0.20..-0.13) outside -> sensitive
+//	open    one model, -0.03 (-0.07..0.01) straddles T: undetermined,
+//	        but judged (40 points)
+//	twin1, twin2 the same occurrence file (same SHA-256), robust
+func oddBatch() []StudyResult {
+	const T = DefaultToleranceAUC
+	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
+	return []StudyResult{
+		{ID: "few", Results: withOccurrences(handStudy(T, handModel{name: "m1", aucs: auc(0.85, 0.61),
+			effects: []effect{{"wide", -0.24, -0.37, -0.11}}, null: &effect{"base", 0.08, -0.06, 0.22}, points: 6}), "aaa")},
+		{ID: "nobase", Results: withOccurrences(standIn(handStudy(T, handModel{name: "m1", aucs: auc(0.95, 0.79),
+			effects: []effect{{"wide", -0.16, -0.20, -0.13}}, null: &effect{"base", 0.07, 0.04, 0.10}, points: 33}),
+			"region_50km", "no test points inside this extent"), "bbb")},
+		{ID: "open", Results: withOccurrences(handStudy(T, handModel{name: "m1", aucs: auc(0.75, 0.72),
+			effects: []effect{{"wide", -0.03, -0.07, 0.01}}, points: 40}), "ccc")},
+		{ID: "twin1", Results: withOccurrences(handStudy(T, handModel{name: "m1", aucs: auc(0.70, 0.705),
+			effects: []effect{{"wide", 0.005, -0.004, 0.014}}, points: 500}), "ddd")},
+		{ID: "twin2", Results: withOccurrences(handStudy(T, handModel{name: "m1", aucs: auc(0.70, 0.705),
+			effects: []effect{{"wide", 0.005, -0.004, 0.014}}, points: 500}), "ddd")},
+	}
+}
+
+// TestSummaryNotJudged checks that a study whose differences all rest on
+// fewer than MinPairedPoints common test points is counted neither robust
+// nor extent-sensitive and is said to be not judged (although its
+// interval lies wholly beyond ±T), that a study whose base extent was
+// replaced says so, that studies sharing an occurrence file are named as
+// not independent, and that a null reading on too few points is counted
+// as not read, apart from the undefined ones.
+func TestSummaryNotJudged(t *testing.T) {
+	s, err := Summarize(oddBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := BatchCounts{Studies: 5, Succeeded: 5, Sensitive: 1, Robust: 2, Undetermined: 2, NotJudged: 1, StandIn: 1,
+		Pairs: 5, PairsSensitive: 1, PairsRobust: 2, PairsUndetermined: 2, PairsNotJudged: 1,
+		NullPairs: 2, Above: 1, TooFew: 1, NullDistance: 2}
+	if s.Counts != want {
+		t.Errorf("counts %+v\nwant   %+v", s.Counts, want)
+	}
+	if got, want := s.CountSentence(), "AUC was extent-sensitive for 1 of 5 studies, robust for 2 and undetermined for 2, 1 of which was not judged "+
+		"(no difference from the base extent on 10 or more common test points, our cut-off)."; got != want {
+		t.Errorf("count sentence %q\nwant %q", got, want)
+	}
+	text := s.MethodsText()
+	for _, want := range []string{
+		"Not judged, so counted neither robust nor extent-sensitive: few.",
+		"nobase (region_50km stands in; base extent left out: no test points inside this extent)",
+		"These studies use one and the same occurrence file, so their verdicts rest on the same test points and are not independent: twin1 and twin2.",
+		"Of these, 1 rests on fewer than 10 common test points and was not judged (our cut-off).",
+		"above the null beyond noise for 1 of 2 study-model pairs (against the distance-only null), within noise of it for 0 and below it for 0; 1 rests on fewer than 10 common test points and was not read (our cut-off).",
+		"a difference on fewer than 10 common test points is not judged (our cut-off).",
+		// What the verdicts rest on, said where a reader weighs the counts.
+		"the intervals were not adjusted for the number of extents compared",
+		"a study with more models or extents has more chances to count as extent-sensitive and fewer to count as robust",
+		"no test across studies is made",
+		"Each reading is a test within its study, not adjusted for the number of models or studies",
+	} {
+		if !strings.Contains(text, want) {
+			t.Errorf("methods text lacks %q:\n%s", want, text)
+		}
+	}
+	if strings.Contains(text, "could not be formed") && !strings.Contains(text, "a difference could not be formed") {
+		t.Errorf("a too-few null reading is called not formed:\n%s", text)
+	}
+	f, ok := effectFigure(s)
+	if !ok {
+		t.Fatal("no figure")
+	}
+	for _, want := range []string{"Drawn but not judged, on fewer than 10 common test points: few (m1, 6).",
+		"In nobase the base extent could not be scored", "(our default tolerance, not a published standard)",
+		"A bar across or inside the band does not settle the verdict"} {
+		if !strings.Contains(f.Caption, want) {
+			t.Errorf("caption lacks %q:\n%s", want, f.Caption)
+		}
+	}
+	page, err := s.page(nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"<td>region_50km (stands in for the base extent: no test points inside this extent)</td>",
+		`<span class="badge undetermined">undetermined</span> (not judged)`} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("summary.html lacks %q", want)
+		}
+	}
+	// open is undetermined on a judged difference: not marked.
+	if bytes.Count(page, []byte("(not judged)")) != 1 {
+		t.Errorf("summary.html marks %d rows not judged, want 1 (few)", bytes.Count(page, []byte("(not judged)")))
 	}
 }
