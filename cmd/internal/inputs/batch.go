@@ -13,6 +13,8 @@ import (
 	"slices"
 	"strings"
 
+	"areasweep/cmd/internal/settings"
+
 	"go.yaml.in/yaml/v3"
 )
 
@@ -562,11 +564,20 @@ func yamlSyntax(err error) (int, string) {
 }
 
 // cellNode turns a CSV cell into the YAML node a study file would hold:
-// NAME=PATH lists split at ';' into a list, anything else a plain scalar
+// NAME=PATH lists split at ';' into a list, number lists too when the
+// cell holds a ';' (the same separator, and no quotes needed around
+// "20;50"; "20,50" in quotes still works), anything else a plain scalar
 // whose type is resolved as in YAML.
 func cellNode(key, cell string, line int) *yaml.Node {
+	split := false
 	switch key {
 	case "model", "null", "extra":
+		split = true
+	default:
+		row, ok := settings.Lookup(key)
+		split = ok && row.Kind == settings.FloatList && strings.Contains(cell, ";")
+	}
+	if split {
 		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line}
 		for _, part := range strings.Split(cell, ";") {
 			n.Content = append(n.Content, &yaml.Node{Kind: yaml.ScalarNode, Value: strings.TrimSpace(part), Line: line})

@@ -381,3 +381,29 @@ func TestLoadBatchWrongFile(t *testing.T) {
 		t.Errorf("GeoTIFF as the table: %v", err)
 	}
 }
+
+// TestBatchNumberListSemicolons: in a comma-separated table a number list
+// may be written with ';' between its items, the separator the NAME=PATH
+// lists use, without quotes; "a, b" in quotes still reads; a bad item is
+// named.
+func TestBatchNumberListSemicolons(t *testing.T) {
+	text := "id,model,occurrences,region,region-buffers,e\n" +
+		"oak,gbm=a.tif,p.csv,r.gpkg,5; -10,0.05;0.1\n" +
+		"elm,gbm=a.tif,p.csv,r.gpkg,\"5, -10\",0.05\n"
+	b, err := ParseBatch([]byte(text), "t.csv", "", false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range [][]float64{{5, -10}, {5, -10}} {
+		if got := (*b.Studies[i].Study)["region-buffers"]; !reflect.DeepEqual(got, want) {
+			t.Errorf("row %d: region-buffers %v, want %v", i+1, got, want)
+		}
+	}
+	if got := (*b.Studies[0].Study)["e"]; !reflect.DeepEqual(got, []float64{0.05, 0.1}) {
+		t.Errorf("e %v", got)
+	}
+	_, err = ParseBatch([]byte("id,model,occurrences,region,point-buffers\noak,gbm=a.tif,p.csv,r.gpkg,5;x\n"), "t.csv", "", false)
+	if err == nil || !strings.Contains(err.Error(), "line 2") || !strings.Contains(err.Error(), "point-buffers") || !strings.Contains(err.Error(), "item 2") {
+		t.Errorf("bad item: %v", err)
+	}
+}
