@@ -32,6 +32,7 @@ var otherToolFlags = map[string]string{
 	"mem":        "sbatch (the array task's memory request)",
 	"dependency": "sbatch (the merge job waits for the array)",
 	"array":      "sbatch (the tasks resubmitted)",
+	"test":       "scripts/setup.sh (the test set-up)",
 }
 
 func readREADME(t *testing.T) string {
@@ -554,5 +555,55 @@ func TestREADMEOutputs(t *testing.T) {
 	var so bytes.Buffer
 	if code := Main([]string{"--help"}, strings.NewReader(""), &so, io.Discard); code != exitOK || !strings.Contains(so.String(), exitCodesHelp) {
 		t.Errorf("areasweep --help (exit %d) does not list the exit codes", code)
+	}
+}
+
+// TestREADMESetUp checks the README's two set-up commands against the
+// scripts: the demo and test commands are scripts/demo.sh and
+// scripts/test.sh, CI runs the latter, every package scripts/setup.sh
+// installs is named, and what the scripts run is what the README says.
+func TestREADMESetUp(t *testing.T) {
+	readme := readREADME(t)
+	top := readme[:strings.Index(readme, "\n## Walkthrough")]
+	read := func(p string) string {
+		b, err := os.ReadFile(filepath.Join("../..", p))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	var blocks []string
+	for _, m := range regexp.MustCompile("(?s)```sh\n(.*?)\n```").FindAllStringSubmatch(top, -1) {
+		blocks = append(blocks, m[1])
+	}
+	if !reflect.DeepEqual(blocks, []string{"scripts/demo.sh", "scripts/test.sh"}) {
+		t.Errorf("README's set-up commands are %q, want scripts/demo.sh and scripts/test.sh", blocks)
+	}
+	if !regexp.MustCompile(`(?m)^scripts/test\.sh\s*$`).MatchString(read(".ci/run")) {
+		t.Error(".ci/run does not run scripts/test.sh, as README says")
+	}
+	flat := strings.Join(strings.Fields(top), " ")
+	for _, m := range regexp.MustCompile(`want\+?=\(([^)]*)\)`).FindAllStringSubmatch(read("scripts/setup.sh"), -1) {
+		for _, pkg := range strings.Fields(m[1]) {
+			if !strings.Contains(flat, pkg) {
+				t.Errorf("scripts/setup.sh installs %s, which README's set-up paragraphs do not name", pkg)
+			}
+		}
+	}
+	for script, runs := range map[string][]string{
+		"scripts/demo.sh": {"scripts/setup.sh", "go build -o bin/areasweep ./cmd/areasweep", `bin/areasweep demo --out "$out" --force`, `out="${1:-areasweep-demo}"`},
+		"scripts/test.sh": {"scripts/setup.sh --test", "gofmt -l .", "go vet ./...", "go test -count=1 ./..."},
+	} {
+		s := read(script)
+		for _, r := range runs {
+			if !strings.Contains(s, r) {
+				t.Errorf("%s no longer runs %q: update README's set-up paragraphs and this test", script, r)
+			}
+		}
+	}
+	for _, says := range []string{"`bin/areasweep`", "bin/areasweep demo --out areasweep-demo --force", "`areasweep-demo`", "`scripts/setup.sh --test`", "`gofmt -l .`", "`go vet ./...`", "`go test -count=1 ./...`"} {
+		if !strings.Contains(flat, says) {
+			t.Errorf("README's set-up paragraphs no longer say %s", says)
+		}
 	}
 }
