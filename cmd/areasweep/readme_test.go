@@ -247,6 +247,26 @@ func checkREADMEFlags(readme string, cmds map[string]*cobra.Command) []string {
 			}
 		})
 	}
+
+	// The rows of the "Other commands" table: a `--flag VALUE` named after
+	// the word "default" is that command's default.
+	for _, line := range strings.Split(readme, "\n") {
+		if !strings.HasPrefix(line, "| `areasweep ") {
+			continue
+		}
+		path, c := commandOf(cmds, strings.Trim(strings.TrimSpace(strings.Split(line, "|")[1]), "`"))
+		i := strings.Index(strings.ToLower(line), "default")
+		if c == nil || i < 0 {
+			continue
+		}
+		fl := cmdFlags(c)
+		for _, m := range codeSpan.FindAllStringSubmatch(line[i:], -1) {
+			name, val, ok := strings.Cut(strings.TrimPrefix(m[1], "--"), " ")
+			if f := fl[name]; ok && strings.HasPrefix(m[1], "--") && f != nil && f.DefValue != val {
+				problems = append(problems, fmt.Sprintf("README gives 'areasweep %s' the default %s, the command's is %q", path, m[1], f.DefValue))
+			}
+		}
+	}
 	return problems
 }
 
@@ -267,6 +287,7 @@ func TestREADMEFlagCheckFails(t *testing.T) {
 		{"areasweep merge --out results", "areasweep merge --seed 3 --out results", "'areasweep merge' has no flag --seed"},
 		{"| `--jobs N` | `1` |", "| `--jobs N` | `2` |", "--jobs default `2`"},
 		{"--scenario-seed", "--scenario", "--scenario-seed, which README.md never names"},
+		{"`--scenario-seed 20261201`", "`--scenario-seed 1`", "the default --scenario-seed 1"},
 	} {
 		if !strings.Contains(readme, c.old) {
 			t.Fatalf("README no longer holds %q: update this test", c.old)
