@@ -506,6 +506,59 @@ func TestREADMEOutputs(t *testing.T) {
 		t.Errorf("scores.csv header %v, README %v", got, want)
 	}
 
+	// scores.csv metrics and rules: each written one is in README's
+	// table, each the table names is written (the null's name read as
+	// <NULL>; "…_se" after "a_minus_<NULL>" is "a_minus_<NULL>_se").
+	sc := readme[strings.Index(readme, "### scores.csv"):]
+	sc = sc[strings.Index(sc, "| metric |"):]
+	sc = sc[:strings.Index(sc, "\n\n")]
+	documented := map[string]bool{}
+	last := ""
+	for _, l := range strings.Split(sc, "\n") {
+		if !strings.HasPrefix(l, "| `") {
+			continue
+		}
+		cells := strings.Split(l, "|")
+		for _, cell := range []string{cells[1], cells[3]} {
+			cell = regexp.MustCompile(`\([^)]*\)`).ReplaceAllString(cell, "") // prose
+			for _, m := range codeSpan.FindAllStringSubmatch(cell, -1) {
+				n := m[1]
+				if strings.HasPrefix(n, "…") && last != "" {
+					n = last + strings.TrimPrefix(n, "…")
+				} else if strings.Contains(n, "<NULL>") {
+					last = n
+				}
+				documented[n] = true
+			}
+		}
+	}
+	f, err := os.Open(filepath.Join(out, "scores.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(f).ReadAll()
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	written := map[string]bool{}
+	for _, r := range recs[1:] {
+		metric := strings.Replace(r[5], "distance_null", "<NULL>", 1)
+		if !written[metric] && !documented[metric] {
+			t.Errorf("scores.csv has metric %s, which README's scores.csv table does not list", r[5])
+		}
+		written[metric] = true
+		if r[7] != "" && !written[r[7]] && !documented[r[7]] {
+			t.Errorf("scores.csv has rule %s, which README's scores.csv table does not list", r[7])
+		}
+		written[r[7]] = true
+	}
+	for n := range documented {
+		if !written[n] && n != "partial_roc_undefined" && n != "fixed_<value>" && n != "E" {
+			t.Errorf("README's scores.csv table lists %s; the run wrote no such metric or rule", n)
+		}
+	}
+
 	// extents.csv.
 	ext := filepath.Join(t.TempDir(), "ext")
 	if _, se, code := runBin(t, append([]string{"extents"}, s.args(ext)[1:]...)...); code != 0 {
