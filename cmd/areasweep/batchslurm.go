@@ -37,8 +37,8 @@ func bindSlurmFlags(f *pflag.FlagSet, o *SlurmOptions) {
 	f.BoolVar(&o.Enabled, "slurm", false, "write a SLURM job array (one task per study, or per study and shard with --shards) and a merge job that merges the shards and writes the summary, instead of running")
 	f.BoolVar(&o.Submit, "submit", false, "with --slurm: submit the unfinished tasks and the merge job with sbatch")
 	f.BoolVar(&o.Wait, "wait", false, "with --submit: wait until the jobs have left the queue and report the tasks that did not finish")
-	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs")
-	f.StringVar(&o.TimeLimit, "time", "", "with --slurm: time limit per task, e.g. `02:00:00`")
+	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs (default: the cluster's)")
+	f.StringVar(&o.TimeLimit, "time", "", "with --slurm: time limit `TIME` per task, e.g. 02:00:00 (default: the partition's)")
 	f.IntVar(&o.CPUs, "cpus-per-task", 1, "with --slurm: CPUs per task `N` (each study uses them all)")
 	f.IntVar(&o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
 }
