@@ -610,6 +610,30 @@ func TestREADMEOutputs(t *testing.T) {
 		t.Errorf("summary.csv header %v; README names, in order, %v", header, named)
 	}
 
+	// summary_verdicts.csv of the same batch: the README names its
+	// columns in order.
+	i = strings.Index(readme, "| `summary_verdicts.csv` | one row per study, model and metric (tidy): ")
+	if i < 0 {
+		t.Fatal("README lost the summary_verdicts.csv row")
+	}
+	row = readme[i:]
+	row = row[:strings.Index(row, "\n")]
+	row = row[:strings.Index(row, "Undefined numbers")]
+	hs = map[string]bool{}
+	vheader := csvHeader(t, filepath.Join(dir, "runs", "summary_verdicts.csv"))
+	for _, h := range vheader {
+		hs[h] = true
+	}
+	named = nil
+	for _, m := range codeSpan.FindAllStringSubmatch(row, -1) {
+		if hs[m[1]] {
+			named = append(named, m[1])
+		}
+	}
+	if !reflect.DeepEqual(named, vheader) {
+		t.Errorf("summary_verdicts.csv header %v; README names, in order, %v", vheader, named)
+	}
+
 	// Exit codes: the README table and the root help list the same codes.
 	sec = readme[strings.Index(readme, "### Exit codes"):]
 	sec = sec[:strings.Index(sec, "\n\n`areasweep --help`")]
