@@ -189,9 +189,9 @@ reports how much of each score comes from the extent rather than from the model.
 			if m[4] == "value out of range" {
 				why = "is out of range"
 			}
-			return fault.BadInput(fmt.Errorf("%s: %q %s (see 'areasweep %s --help')", m[1], m[3], why, c.Name()))
+			return fault.BadInput(fmt.Errorf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))
 		}
-		return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
+		return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
 	root.AddCommand(
 		newRunCmd(streams, nil),
@@ -235,7 +235,7 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 		case strings.Contains(err.Error(), "--help"): // the command's own message
 			return fault.BadInput(err)
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
-			return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
+			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 		}
 		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
 	}

@@ -20,6 +20,7 @@ import (
 	"strings"
 	"sync"
 	"syscall"
+	"time"
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/report"
@@ -240,7 +241,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 func visible(entries []os.DirEntry) []os.DirEntry {
 	var v []os.DirEntry
 	for _, e := range entries {
-		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) {
+		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) || strings.HasPrefix(e.Name(), stagedPrefix) {
 			continue
 		}
 		v = append(v, e)
@@ -448,13 +449,20 @@ func (d *Dir) release() {
 	active.mu.Unlock()
 }
 
-// AbortAll aborts every run in progress (signal handler).
+// AbortAll aborts every run in progress and removes every Staged folder
+// (signal handler).
 func AbortAll() {
 	active.mu.Lock()
 	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
 	for _, d := range dirs {
 		d.Abort()
+	}
+	activeStaged.mu.Lock()
+	staged := append([]*Staged(nil), activeStaged.list...)
+	activeStaged.mu.Unlock()
+	for _, s := range staged {
+		s.Abort()
 	}
 }
 
@@ -571,4 +579,82 @@ func (d *Dir) moveEntries() error {
 	}
 	os.RemoveAll(hold)
 	return nil
+}
+
+// Staged is a folder of files written before they are moved into a folder
+// that is not a run's --out (the report command writes the report of DIR
+// into one inside DIR, then moves its files into place). AbortAll removes
+// it; a signal that arrives while Finish moves the files waits for the
+// moves, so the folder is left with the old files or with the new ones,
+// never with temporary files.
+type Staged struct {
+	Path string
+	mu   sync.Mutex
+	done bool
+}
+
+// stagedPrefix names the staging folders of Stage (hidden, owner's PID).
+const stagedPrefix = ".areasweep-staged-"
+
+var activeStaged struct {
+	mu   sync.Mutex
+	list []*Staged
+}
+
+// Stage makes a staging folder inside dir, removed by AbortAll.
+func Stage(dir string) (*Staged, error) {
+	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
+	if err != nil {
+		return nil, err
+	}
+	s := &Staged{Path: p}
+	activeStaged.mu.Lock()
+	activeStaged.list = append(activeStaged.list, s)
+	activeStaged.mu.Unlock()
+	return s, nil
+}
+
+// Finish runs move (which moves the staged files into place) without
+// letting AbortAll interrupt it, then removes the staging folder.
+func (s *Staged) Finish(move func() error) error {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.done {
+		return errors.New("internal: staged files already finished")
+	}
+	err := move()
+	s.remove()
+	return err
+}
+
+// Abort removes the staging folder; safe to call more than once.
+func (s *Staged) Abort() {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.remove()
+}
+
+func (s *Staged) remove() {
+	if s.done {
+		return
+	}
+	s.done = true
+	// Writers may still be creating files in it (a signal): rename it
+	// first, so that their next file by path fails, then remove it,
+	// again while files opened before the rename still arrive.
+	gone := s.Path
+	if os.Rename(s.Path, s.Path+"-removed") == nil {
+		gone = s.Path + "-removed"
+	}
+	for i := 0; i < 10 && os.RemoveAll(gone) != nil; i++ {
+		time.Sleep(10 * time.Millisecond)
+	}
+	activeStaged.mu.Lock()
+	for i, x := range activeStaged.list {
+		if x == s {
+			activeStaged.list = append(activeStaged.list[:i], activeStaged.list[i+1:]...)
+			break
+		}
+	}
+	activeStaged.mu.Unlock()
 }
