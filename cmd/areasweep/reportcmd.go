@@ -95,11 +95,11 @@ func reportRun(o *ReportOptions) error {
 	shapeErr := checkShape(data)
 	data = nil
 	r, err := report.Load(path)
-	if err != nil && (shapeErr == nil || strings.Contains(err.Error(), "schema_version")) {
-		return fault.BadInput(err) // not JSON at all, or of another schema
+	if err != nil && (shapeErr == nil || strings.Contains(err.Error(), "schema_version") || strings.HasPrefix(shapeErr.Error(), shapePath(""))) {
+		return fault.BadInput(err) // not a JSON object at all, or of another schema
 	}
 	if shapeErr != nil {
-		return fault.BadInput(fmt.Errorf("report: %s: %v; the file was changed or damaged: rerun areasweep run to get a new one", path, shapeErr))
+		return fault.BadInput(fmt.Errorf("report: %s is not a results file written by areasweep as it stands (%v); the file was changed or damaged: rerun areasweep run to get a new one", path, shapeErr))
 	}
 	if err := report.Validate(r); err != nil {
 		return fault.BadInput(err)
@@ -188,7 +188,7 @@ func shapePath(path string) string {
 	if path == "" {
 		return "the top level"
 	}
-	return path
+	return cut(path)
 }
 
 // walkShape reads one value at path and checks it against t (nil: any).
