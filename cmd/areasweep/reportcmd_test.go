@@ -150,18 +150,30 @@ func TestReportStoppedLeavesNoTemporaryFiles(t *testing.T) {
 	}
 }
 
-// TestFlagErrorNamesCommandPath: a flag error points to the help of the
-// command it came from, the root's included.
-func TestFlagErrorNamesCommandPath(t *testing.T) {
-	for args, want := range map[string]string{
-		"--bogus":                 "(see 'areasweep --help')",
-		"completion bash --bogus": "(see 'areasweep completion bash --help')",
-		"run --workers x":         "(see 'areasweep run --help')",
-	} {
-		var out, errOut bytes.Buffer
-		code := Main(strings.Fields(args), nil, &out, &errOut)
-		if code != exitBadInput || !strings.Contains(errOut.String(), want) {
-			t.Errorf("%s: exit %d, %q; want 2 and %q", args, code, errOut.String(), want)
+// TestStoppedAsStagingStarts: a signal that arrives as soon as the
+// staging folder appears, before the run has finished opening --out,
+// still removes the staging folder and the lock (repeated, as the window
+// is a few microseconds).
+func TestStoppedAsStagingStarts(t *testing.T) {
+	for i := 0; i < 15; i++ {
+		parent := t.TempDir()
+		out := filepath.Join(parent, "demo")
+		cmd := exec.Command(areasweepBin, "demo", "--out", out, "--quiet")
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		for deadline := time.Now().Add(30 * time.Second); time.Now().Before(deadline); {
+			if m, _ := filepath.Glob(filepath.Join(parent, ".demo.areasweep-partial-*")); len(m) > 0 {
+				break
+			}
+		}
+		cmd.Process.Signal(syscall.SIGTERM)
+		cmd.Wait()
+		if _, err := os.Stat(out); err == nil {
+			continue // finished before the signal
+		}
+		if entries, _ := os.ReadDir(parent); len(entries) > 0 {
+			t.Fatalf("try %d: the stopped demo left %s", i, entries[0].Name())
 		}
 	}
 }

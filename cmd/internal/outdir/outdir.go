@@ -209,12 +209,24 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	} else if !errors.Is(err, os.ErrNotExist) {
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
 	}
-	if err := d.makeParent(out); err != nil {
+	// Registered and held from here, so that a signal (AbortAll) waits
+	// until the lock and the staging folder exist and then removes both,
+	// instead of missing them by a few microseconds.
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	active.mu.Lock()
+	active.dirs = append(active.dirs, d)
+	active.mu.Unlock()
+	fail := func(err error) (*Dir, error) {
+		d.done = true
+		d.release()
 		return nil, err
 	}
+	if err := d.makeParent(out); err != nil {
+		return fail(err)
+	}
 	if err := d.takeLock(out); err != nil {
-		d.removeCreated()
-		return nil, err
+		return fail(err)
 	}
 	d.cleanDead(exists)
 	where, prefix := d.parent, "."+d.name+"."+stagePrefix[1:]
@@ -226,13 +238,12 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		err = os.Chmod(stage, MkdirPerm())
 	}
 	if err != nil {
-		d.release()
-		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
+		if stage != "" {
+			os.RemoveAll(stage)
+		}
+		return fail(fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err))))
 	}
 	d.Stage = stage
-	active.mu.Lock()
-	active.dirs = append(active.dirs, d)
-	active.mu.Unlock()
 	return d, nil
 }
 
