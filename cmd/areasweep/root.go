@@ -210,6 +210,20 @@ reports how much of each score comes from the extent rather than from the model.
 	if c, _, err := root.Find([]string{"completion"}); err == nil && c != root {
 		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
 	}
+	// cobra's help command prints "Unknown help topic" and exits 0 for a
+	// command it does not have: refuse it like an unknown command.
+	root.InitDefaultHelpCmd()
+	if h, _, err := root.Find([]string{"help"}); err == nil && h != root && h.Run != nil {
+		show := h.Run
+		h.Run = nil
+		h.RunE = func(c *cobra.Command, args []string) error {
+			if t, _, err := root.Find(args); t == nil || err != nil {
+				return fault.BadInput(fmt.Errorf("no help for %q: it is not a command of areasweep (see 'areasweep --help')", strings.Join(args, " ")))
+			}
+			show(c, args)
+			return nil
+		}
+	}
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)
 	}
