@@ -194,7 +194,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	exists := err == nil
 	if exists {
 		if !st.IsDir() {
-			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory", out))
+			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the results (a new one, or one areasweep wrote before)", out))
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
