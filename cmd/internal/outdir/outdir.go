@@ -163,12 +163,18 @@ func (d *Dir) foreign(names []string, staged string) []string {
 // foreignError is the message for foreign files in a folder --force
 // would replace.
 func foreignError(out string, found []string) error {
+	var dirs []string
+	for _, f := range found {
+		if d := filepath.Dir(f); !slices.Contains(dirs, d) {
+			dirs = append(dirs, d)
+		}
+	}
+	dir := strings.Join(dirs, " and ")
 	more := ""
 	if len(found) > 3 {
 		more = fmt.Sprintf(" and %d more", len(found)-3)
 		found = found[:3]
 	}
-	dir := filepath.Dir(found[0])
 	return fmt.Errorf("--out %s holds %s%s, not written by areasweep, in %s, which --force replaces as a whole; "+
 		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
 }

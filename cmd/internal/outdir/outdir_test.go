@@ -224,3 +224,22 @@ func TestOpenErrorsWrapTheCause(t *testing.T) {
 		t.Errorf("Open under a file: %v is not an input error", err)
 	}
 }
+
+// TestForeignErrorNamesEachFolder: files of the user's in the demo's
+// figures/ and inputs/ are refused with both folders named, not only the
+// first one's.
+func TestForeignErrorNamesEachFolder(t *testing.T) {
+	out := t.TempDir()
+	for _, p := range []string{"figures/notes.txt", "inputs/user.csv"} {
+		os.MkdirAll(filepath.Join(out, filepath.Dir(p)), 0o755)
+		os.WriteFile(filepath.Join(out, p), []byte("mine"), 0o644)
+	}
+	_, err := OpenDemo(out, true, []string{"study.yaml"})
+	if err == nil {
+		t.Fatal("OpenDemo accepted a folder with the user's files in figures/ and inputs/")
+	}
+	want := "in " + filepath.Join(out, "figures") + " and " + filepath.Join(out, "inputs") + ","
+	if !strings.Contains(err.Error(), want) {
+		t.Errorf("message %q does not contain %q", err, want)
+	}
+}
