@@ -618,8 +618,19 @@ var activeStaged struct {
 	list []*Staged
 }
 
-// Stage makes a staging folder inside dir, removed by AbortAll.
+// Stage makes a staging folder inside dir, removed by AbortAll. It first
+// removes the staging folders in dir of processes that no longer exist
+// (killed with SIGKILL, power cut); a folder whose process lives, or
+// whose name holds no process id, is left alone.
 func Stage(dir string) (*Staged, error) {
+	if m, _ := filepath.Glob(filepath.Join(globEscape(dir), stagedPrefix+"*")); m != nil {
+		for _, p := range m {
+			pid, _, _ := strings.Cut(strings.TrimPrefix(filepath.Base(p), stagedPrefix), "-")
+			if n, err := strconv.Atoi(pid); err == nil && n > 0 && syscall.Kill(n, 0) == syscall.ESRCH {
+				os.RemoveAll(p)
+			}
+		}
+	}
 	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
 	if err != nil {
 		return nil, err

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"io/fs"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -241,5 +242,31 @@ func TestForeignErrorNamesEachFolder(t *testing.T) {
 	want := "in " + filepath.Join(out, "figures") + " and " + filepath.Join(out, "inputs") + ","
 	if !strings.Contains(err.Error(), want) {
 		t.Errorf("message %q does not contain %q", err, want)
+	}
+}
+
+// TestStageRemovesDeadStaging: Stage removes the staging folder of a
+// process that no longer exists and keeps a living process's.
+func TestStageRemovesDeadStaging(t *testing.T) {
+	dir := t.TempDir()
+	cmd := exec.Command("true")
+	if err := cmd.Run(); err != nil {
+		t.Fatal(err)
+	}
+	dead := filepath.Join(dir, stagedPrefix+strconv.Itoa(cmd.Process.Pid)+"-1")
+	live := filepath.Join(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-2")
+	for _, p := range []string{dead, live} {
+		os.MkdirAll(filepath.Join(p, "figures"), 0o755)
+	}
+	s, err := Stage(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Abort()
+	if _, err := os.Stat(dead); err == nil {
+		t.Error("the dead process's staging folder is still there")
+	}
+	if _, err := os.Stat(live); err != nil {
+		t.Errorf("the living process's staging folder was removed: %v", err)
 	}
 }
