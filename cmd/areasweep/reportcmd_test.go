@@ -119,14 +119,17 @@ func TestReportStoppedLeavesNoTemporaryFiles(t *testing.T) {
 	if err := cmd.Start(); err != nil {
 		t.Fatal(err)
 	}
-	deadline := time.Now().Add(60 * time.Second)
-	for time.Now().Before(deadline) {
-		if m, _ := filepath.Glob(filepath.Join(dir, ".areasweep-staged-*", "figures")); len(m) > 0 {
-			break
-		}
+	staged := false
+	for deadline := time.Now().Add(60 * time.Second); !staged && time.Now().Before(deadline); {
+		m, _ := filepath.Glob(filepath.Join(dir, ".areasweep-staged-*", "figures"))
+		staged = len(m) > 0
 		time.Sleep(time.Millisecond)
 	}
 	cmd.Process.Signal(syscall.SIGINT)
+	if !staged {
+		cmd.Wait()
+		t.Fatal("the report drew no figure in a staging folder inside DIR")
+	}
 	err := cmd.Wait()
 	ee, ok := err.(*exec.ExitError)
 	if err == nil {
