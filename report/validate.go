@@ -18,10 +18,13 @@ const MaxPreviewSide = 4096
 // problem names the field (`scores[3].auc`), the model and extent, the
 // value and the allowed range. It checks:
 //
-//   - the grid size, models (unique names, finite ranges, floor share in
-//     [0,1]) and extents (unique ids, counts and areas >= 0, share in [0,1],
-//     duplicate_of naming an earlier extent);
-//   - scores, rings and curves refer to known models and extents;
+//   - the grid size (positive), point counts (>= 0), models (unique names,
+//     finite ranges, floor share in [0,1]) and extents (unique ids, a known
+//     status, counts and areas >= 0, share in [0,1], duplicate_of naming
+//     an earlier extent);
+//   - scores, rings, curves and paired records refer to known models and
+//     extents, and there is exactly one score per model and extent;
+//   - a scored score holds one test point id and placement per test point;
 //   - AUCs, omission rates, area fractions and p-values lie in [0,1], the
 //     Boyce index in [-1,1], partial ROC ratios and SDs are >= 0 and E in
 //     (0,1), successes lie in [0, n];
@@ -33,8 +36,15 @@ func Validate(r *Results) error {
 	}
 	v := &validator{}
 	v.settings(r.Settings)
-	if r.Grid.Width < 0 || r.Grid.Height < 0 {
-		v.fail("grid", "size %dx%d is negative", r.Grid.Width, r.Grid.Height)
+	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
+		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
+	}
+	pc := r.PointCounts
+	for _, c := range []struct {
+		name string
+		n    int
+	}{{"train", pc.Train}, {"test", pc.Test}, {"thinned", pc.Thinned}, {"outside_raster", pc.OutsideRaster}, {"nodata", pc.NoData}} {
+		v.nonNegInt("point_counts."+c.name, int64(c.n))
 	}
 	models := map[string]bool{}
 	for i, m := range r.Models {
@@ -57,6 +67,11 @@ func Validate(r *Results) error {
 			v.fail(at+".duplicate_of", "%q is not an earlier extent", e.DuplicateOf)
 		}
 		extents[e.ID] = true
+		switch e.Status {
+		case vocab.StatusOK, vocab.StatusEmpty, vocab.StatusDuplicate:
+		default:
+			v.fail(at+".status", "%q is not %s, %s or %s", e.Status, vocab.StatusOK, vocab.StatusEmpty, vocab.StatusDuplicate)
+		}
 		v.nonNegInt(at+".cells", e.Cells)
 		v.nonNeg(at+".area_km2", e.AreaKm2)
 		v.unit(at+".share_of_raster", e.ShareOfRaster)
@@ -71,10 +86,28 @@ func Validate(r *Results) error {
 			v.fail(at, "extent %q is not in extents", ext)
 		}
 	}
+	scored := map[[2]string]bool{}
 	for i, s := range r.Scores {
 		at := fmt.Sprintf("scores[%d] (model %s, extent %s)", i, s.Model, s.Extent)
 		ref(at, s.Model, s.Extent)
+		if scored[[2]string{s.Model, s.Extent}] {
+			v.fail(at, "model %s on extent %s is scored twice", s.Model, s.Extent)
+		}
+		scored[[2]string{s.Model, s.Extent}] = true
 		v.score(at, s)
+	}
+	// A run writes one score, scored or not, per model and extent.
+	for _, m := range r.Models {
+		for _, e := range r.Extents {
+			if !scored[[2]string{m.Name, e.ID}] {
+				v.fail("scores", "hold no score of model %s on extent %s; a run writes one for every model and extent", m.Name, e.ID)
+			}
+		}
+	}
+	for i, p := range r.Paired {
+		at := fmt.Sprintf("paired[%d] (%s, model %s, extent %s)", i, p.Metric, p.Model, p.Extent)
+		ref(at, p.Model, p.Extent)
+		ref(at+" other side", p.OtherModel, p.OtherExtent)
 	}
 	for i, g := range r.Rings {
 		at := fmt.Sprintf("rings[%d] (model %s, %s to %s)", i, g.Model, g.Inner, g.Outer)
@@ -193,6 +226,10 @@ func (v *validator) score(at string, s Score) {
 	}
 	if !s.Scored {
 		return
+	}
+	if len(s.TestPointIDs) != s.TestPoints || len(s.Placements) != s.TestPoints || len(s.PlacementsUnweighted) != s.TestPoints {
+		v.fail(at, "test_points is %d but test_point_ids, placements and placements_unweighted hold %d, %d and %d values",
+			s.TestPoints, len(s.TestPointIDs), len(s.Placements), len(s.PlacementsUnweighted))
 	}
 	v.unit(at+".auc", s.AUC)
 	v.unit(at+".auc_unweighted", s.AUCUnweighted)

@@ -47,6 +47,14 @@ func TestValidateRefuses(t *testing.T) {
 		{"E outside (0,1)", func(r *Results) { r.Settings.E = []float64{1.5} }, "settings.e[0]"},
 		{"point role", func(r *Results) { r.Points[0].Role = "both" }, `"both" is not train or test`},
 		{"curve lengths", func(r *Results) { r.Curves[0].Y = r.Curves[0].Y[:1] }, "x has"},
+		{"grid of no cells", func(r *Results) { r.Grid.Width = 0 }, "grid: size 0x"},
+		{"negative point count", func(r *Results) { r.PointCounts.Train = -3 }, "point_counts.train: -3"},
+		{"extent status", func(r *Results) { r.Extents[0].Status = "weird" }, `.status: "weird" is not ok`},
+		{"score missing", func(r *Results) { r.Scores = r.Scores[1:] }, "hold no score of model"},
+		{"no scores", func(r *Results) { r.Scores = nil }, "hold no score of model"},
+		{"score twice", func(r *Results) { r.Scores[1].Extent = r.Scores[0].Extent }, "scored twice"},
+		{"placements length", func(r *Results) { s := firstScored(r); s.Placements = append(s.Placements, 0.5) }, "placements and placements_unweighted hold"},
+		{"paired unknown extent", func(r *Results) { r.Paired[0].OtherExtent = "ghost" }, `extent "ghost" is not in extents`},
 		{"boyce index", func(r *Results) {
 			for i := range r.Scores {
 				if r.Scores[i].Boyce != nil {

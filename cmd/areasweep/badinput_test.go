@@ -512,7 +512,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"out contains the inputs folder, force", append(f.run("--out", filepath.Dir(f.dir), "--force"), "--quiet"), 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
 		{"out is the current folder holding inputs", append(f.run("--out", ".", "--force"), "--quiet"), 2, []string{"holds the input"}, f.dir, f.dir},
 		{"study file out: ..", []string{"run", "--study", studyOutUp, "--force", "--quiet"}, 2, []string{"holds the input"}, "", filepath.Dir(f.dir)},
-		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory"}, "", aFile},
+		{"out is a file", append(f.run("--out", aFile), "--quiet"), 2, []string{"not a directory; name a folder for the results"}, "", aFile},
 		{"out not empty without force", append(f.run("--out", nonEmpty), "--quiet"), 2, []string{"not empty", "--force"}, "", nonEmpty},
 		{"force with a file of the user's in figures/", append(f.run("--out", ownFigure, "--force"), "--quiet"), 2, []string{"my_figure.png", "not written by areasweep", "--force replaces as a whole"}, "", ownFigure},
 		{"out is an input file", append(f.run("--out", f.occ, "--force"), "--quiet"), 2, []string{"is the input file", "name a folder"}, "", f.occ},

@@ -189,9 +189,9 @@ reports how much of each score comes from the extent rather than from the model.
 			if m[4] == "value out of range" {
 				why = "is out of range"
 			}
-			return fault.BadInput(fmt.Errorf("%s: %q %s (see 'areasweep %s --help')", m[1], m[3], why, c.Name()))
+			return fault.BadInput(fmt.Errorf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))
 		}
-		return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
+		return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
 	root.AddCommand(
 		newRunCmd(streams, nil),
@@ -209,6 +209,20 @@ reports how much of each score comes from the extent rather than from the model.
 	root.InitDefaultCompletionCmd()
 	if c, _, err := root.Find([]string{"completion"}); err == nil && c != root {
 		c.RunE = func(c *cobra.Command, _ []string) error { return c.Help() }
+	}
+	// cobra's help command prints "Unknown help topic" and exits 0 for a
+	// command it does not have: refuse it like an unknown command.
+	root.InitDefaultHelpCmd()
+	if h, _, err := root.Find([]string{"help"}); err == nil && h != root && h.Run != nil {
+		show := h.Run
+		h.Run = nil
+		h.RunE = func(c *cobra.Command, args []string) error {
+			if t, _, err := root.Find(args); t == nil || err != nil {
+				return fault.BadInput(fmt.Errorf("no help for %q: it is not a command of areasweep (see 'areasweep --help')", strings.Join(args, " ")))
+			}
+			show(c, args)
+			return nil
+		}
 	}
 	for _, c := range root.Commands() {
 		c.Args = wrapArgs(c.Args)
@@ -235,7 +249,7 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 		case strings.Contains(err.Error(), "--help"): // the command's own message
 			return fault.BadInput(err)
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
-			return fault.BadInput(fmt.Errorf("%w (see 'areasweep %s --help')", err, c.Name()))
+			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 		}
 		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
 	}

@@ -20,6 +20,7 @@ import (
 	"strings"
 	"sync"
 	"syscall"
+	"time"
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/report"
@@ -162,12 +163,18 @@ func (d *Dir) foreign(names []string, staged string) []string {
 // foreignError is the message for foreign files in a folder --force
 // would replace.
 func foreignError(out string, found []string) error {
+	var dirs []string
+	for _, f := range found {
+		if d := filepath.Dir(f); !slices.Contains(dirs, d) {
+			dirs = append(dirs, d)
+		}
+	}
+	dir := strings.Join(dirs, " and ")
 	more := ""
 	if len(found) > 3 {
 		more = fmt.Sprintf(" and %d more", len(found)-3)
 		found = found[:3]
 	}
-	dir := filepath.Dir(found[0])
 	return fmt.Errorf("--out %s holds %s%s, not written by areasweep, in %s, which --force replaces as a whole; "+
 		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
 }
@@ -193,7 +200,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	exists := err == nil
 	if exists {
 		if !st.IsDir() {
-			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory", out))
+			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the results (a new one, or one areasweep wrote before)", out))
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
@@ -208,12 +215,24 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	} else if !errors.Is(err, os.ErrNotExist) {
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
 	}
-	if err := d.makeParent(out); err != nil {
+	// Registered and held from here, so that a signal (AbortAll) waits
+	// until the lock and the staging folder exist and then removes both,
+	// instead of missing them by a few microseconds.
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	active.mu.Lock()
+	active.dirs = append(active.dirs, d)
+	active.mu.Unlock()
+	fail := func(err error) (*Dir, error) {
+		d.done = true
+		d.release()
 		return nil, err
 	}
+	if err := d.makeParent(out); err != nil {
+		return fail(err)
+	}
 	if err := d.takeLock(out); err != nil {
-		d.removeCreated()
-		return nil, err
+		return fail(err)
 	}
 	d.cleanDead(exists)
 	where, prefix := d.parent, "."+d.name+"."+stagePrefix[1:]
@@ -225,13 +244,12 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		err = os.Chmod(stage, MkdirPerm())
 	}
 	if err != nil {
-		d.release()
-		return nil, fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
+		if stage != "" {
+			os.RemoveAll(stage)
+		}
+		return fail(fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err))))
 	}
 	d.Stage = stage
-	active.mu.Lock()
-	active.dirs = append(active.dirs, d)
-	active.mu.Unlock()
 	return d, nil
 }
 
@@ -240,7 +258,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 func visible(entries []os.DirEntry) []os.DirEntry {
 	var v []os.DirEntry
 	for _, e := range entries {
-		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) {
+		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) || strings.HasPrefix(e.Name(), stagedPrefix) {
 			continue
 		}
 		v = append(v, e)
@@ -448,13 +466,20 @@ func (d *Dir) release() {
 	active.mu.Unlock()
 }
 
-// AbortAll aborts every run in progress (signal handler).
+// AbortAll aborts every run in progress and removes every Staged folder
+// (signal handler).
 func AbortAll() {
 	active.mu.Lock()
 	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
 	for _, d := range dirs {
 		d.Abort()
+	}
+	activeStaged.mu.Lock()
+	staged := append([]*Staged(nil), activeStaged.list...)
+	activeStaged.mu.Unlock()
+	for _, s := range staged {
+		s.Abort()
 	}
 }
 
@@ -571,4 +596,93 @@ func (d *Dir) moveEntries() error {
 	}
 	os.RemoveAll(hold)
 	return nil
+}
+
+// Staged is a folder of files written before they are moved into a folder
+// that is not a run's --out (the report command writes the report of DIR
+// into one inside DIR, then moves its files into place). AbortAll removes
+// it; a signal that arrives while Finish moves the files waits for the
+// moves, so the folder is left with the old files or with the new ones,
+// never with temporary files.
+type Staged struct {
+	Path string
+	mu   sync.Mutex
+	done bool
+}
+
+// stagedPrefix names the staging folders of Stage (hidden, owner's PID).
+const stagedPrefix = ".areasweep-staged-"
+
+var activeStaged struct {
+	mu   sync.Mutex
+	list []*Staged
+}
+
+// Stage makes a staging folder inside dir, removed by AbortAll. It first
+// removes the staging folders in dir of processes that no longer exist
+// (killed with SIGKILL, power cut); a folder whose process lives, or
+// whose name holds no process id, is left alone.
+func Stage(dir string) (*Staged, error) {
+	if m, _ := filepath.Glob(filepath.Join(globEscape(dir), stagedPrefix+"*")); m != nil {
+		for _, p := range m {
+			pid, _, _ := strings.Cut(strings.TrimPrefix(filepath.Base(p), stagedPrefix), "-")
+			if n, err := strconv.Atoi(pid); err == nil && n > 0 && syscall.Kill(n, 0) == syscall.ESRCH {
+				os.RemoveAll(p)
+			}
+		}
+	}
+	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
+	if err != nil {
+		return nil, err
+	}
+	s := &Staged{Path: p}
+	activeStaged.mu.Lock()
+	activeStaged.list = append(activeStaged.list, s)
+	activeStaged.mu.Unlock()
+	return s, nil
+}
+
+// Finish runs move (which moves the staged files into place) without
+// letting AbortAll interrupt it, then removes the staging folder.
+func (s *Staged) Finish(move func() error) error {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.done {
+		return errors.New("internal: staged files already finished")
+	}
+	err := move()
+	s.remove()
+	return err
+}
+
+// Abort removes the staging folder; safe to call more than once.
+func (s *Staged) Abort() {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.remove()
+}
+
+func (s *Staged) remove() {
+	if s.done {
+		return
+	}
+	s.done = true
+	// Writers may still be creating files in it (a signal): rename it
+	// first, so that their next file by path fails, then remove it,
+	// again while files opened before the rename still arrive.
+	gone := s.Path
+	if os.Rename(s.Path, s.Path+"-removed") == nil {
+		gone = s.Path + "-removed"
+	}
+	for i := 0; i < 10 && os.RemoveAll(gone) != nil; i++ {
+		time.Sleep(10 * time.Millisecond)
+	}
+	activeStaged.mu.Lock()
+	for i, x := range activeStaged.list {
+		if x == s {
+			activeStaged.list = append(activeStaged.list[:i], activeStaged.list[i+1:]...)
+			break
+		}
+	}
+	activeStaged.mu.Unlock()
 }

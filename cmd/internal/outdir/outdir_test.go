@@ -4,6 +4,7 @@ import (
 	"errors"
 	"io/fs"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -222,5 +223,50 @@ func TestOpenErrorsWrapTheCause(t *testing.T) {
 	}
 	if !fault.IsBadInput(err) {
 		t.Errorf("Open under a file: %v is not an input error", err)
+	}
+}
+
+// TestForeignErrorNamesEachFolder: files of the user's in the demo's
+// figures/ and inputs/ are refused with both folders named, not only the
+// first one's.
+func TestForeignErrorNamesEachFolder(t *testing.T) {
+	out := t.TempDir()
+	for _, p := range []string{"figures/notes.txt", "inputs/user.csv"} {
+		os.MkdirAll(filepath.Join(out, filepath.Dir(p)), 0o755)
+		os.WriteFile(filepath.Join(out, p), []byte("mine"), 0o644)
+	}
+	_, err := OpenDemo(out, true, []string{"study.yaml"})
+	if err == nil {
+		t.Fatal("OpenDemo accepted a folder with the user's files in figures/ and inputs/")
+	}
+	want := "in " + filepath.Join(out, "figures") + " and " + filepath.Join(out, "inputs") + ","
+	if !strings.Contains(err.Error(), want) {
+		t.Errorf("message %q does not contain %q", err, want)
+	}
+}
+
+// TestStageRemovesDeadStaging: Stage removes the staging folder of a
+// process that no longer exists and keeps a living process's.
+func TestStageRemovesDeadStaging(t *testing.T) {
+	dir := t.TempDir()
+	cmd := exec.Command("true")
+	if err := cmd.Run(); err != nil {
+		t.Fatal(err)
+	}
+	dead := filepath.Join(dir, stagedPrefix+strconv.Itoa(cmd.Process.Pid)+"-1")
+	live := filepath.Join(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-2")
+	for _, p := range []string{dead, live} {
+		os.MkdirAll(filepath.Join(p, "figures"), 0o755)
+	}
+	s, err := Stage(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Abort()
+	if _, err := os.Stat(dead); err == nil {
+		t.Error("the dead process's staging folder is still there")
+	}
+	if _, err := os.Stat(live); err != nil {
+		t.Errorf("the living process's staging folder was removed: %v", err)
 	}
 }
