@@ -284,23 +284,7 @@ func TestCompareMatchesReference(t *testing.T) {
 		func(i int) bool { return i%2 == 0 || i < 10 },
 		func(i int) bool { return i%7 < 2 },
 	}
-	mk := func(m, k int) *Evaluator {
-		var test []float64
-		var ids []int
-		for i, v := range c.test {
-			if sets[k](i) {
-				if m == 1 {
-					v = c.test[(i+5)%len(c.test)]
-				}
-				test, ids = append(test, v), append(ids, i)
-			}
-		}
-		e, err := NewEvaluator(acc, test, ids, ths, s)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return e
-	}
+	mk := func(m, k int) *Evaluator { return evaluatorOnSet(t, acc, c.test, m, sets[k], ths, s) }
 	d := Draws{N: len(c.test), B: 80, Seed: 13}
 	reference := func(a, b *Evaluator) Comparison {
 		inB := map[int]bool{}

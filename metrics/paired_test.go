@@ -311,23 +311,7 @@ func TestCompareMemoMatchesDirect(t *testing.T) {
 	}
 	// mk returns the evaluator of model m (0: the test values; 1: another
 	// model, the values of other presences) on test set k.
-	mk := func(m, k int) *Evaluator {
-		var test []float64
-		var ids []int
-		for i, v := range c.test {
-			if sets[k](i) {
-				if m == 1 {
-					v = c.test[(i+5)%len(c.test)]
-				}
-				test, ids = append(test, v), append(ids, i)
-			}
-		}
-		e, err := NewEvaluator(acc, test, ids, ths, s)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return e
-	}
+	mk := func(m, k int) *Evaluator { return evaluatorOnSet(t, acc, c.test, m, sets[k], ths, s) }
 	d := Draws{N: len(c.test), B: 60, Seed: 9}
 	type side struct{ m, k int }
 	pairs := [][2]side{{{0, 1}, {0, 0}}, {{0, 0}, {0, 1}}, {{0, 0}, {1, 0}}, {{0, 1}, {0, 2}}, {{1, 2}, {0, 0}}, {{0, 1}, {1, 1}}, {{1, 0}, {1, 0}}}
@@ -458,4 +442,27 @@ func TestCompareConcurrent(t *testing.T) {
 			t.Errorf("BootSD of evaluator %d at once %v, one at a time %v", i, gotSD[i], wantSD[i])
 		}
 	}
+}
+
+// evaluatorOnSet returns the evaluator of model m on the presences i of
+// test that keep(i) holds: model 0 scores them with their own values,
+// model 1 with the values of other presences (test[(i+5) mod n]), so the
+// two models rank the same presences differently.
+func evaluatorOnSet(t *testing.T, acc *Accumulator, test []float64, m int, keep func(int) bool, ths []float64, s Settings) *Evaluator {
+	t.Helper()
+	var vals []float64
+	var ids []int
+	for i, v := range test {
+		if keep(i) {
+			if m == 1 {
+				v = test[(i+5)%len(test)]
+			}
+			vals, ids = append(vals, v), append(ids, i)
+		}
+	}
+	e, err := NewEvaluator(acc, vals, ids, ths, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return e
 }
