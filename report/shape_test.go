@@ -1,0 +1,42 @@
+package report
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestCheckShape: the sample results file passes; each hand edit that
+// decoding alone would accept silently, or report without its place, is
+// refused naming the field's path.
+func TestCheckShape(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := CheckShape(data); err != nil {
+		t.Fatalf("sample: %v", err)
+	}
+	for _, c := range []struct {
+		name, text, want string
+		top              bool
+	}{
+		{"twice", `{"schema_version": 3, "seed": 1, "seed": 2}`, "seed", false},
+		{"wrong kind", `{"schema_version": 3, "scores": [{"auc": "0.8"}]}`, "scores[0].auc", false},
+		{"null", `{"schema_version": 3, "scores": [{"auc": null}]}`, "scores[0].auc", false},
+		{"nan", `{"schema_version": 3, "scores": [{"auc": NaN}]}`, "JSON has no NaN", false},
+		{"trailing", `{"schema_version": 3} {}`, "more JSON follows", false},
+		{"deep", `{"schema_version": 3, "x_note": ` + strings.Repeat("[", 40) + strings.Repeat("]", 40) + `}`, "nested more than", false},
+		{"array", `[1, 2]`, "the top level", true},
+	} {
+		err := CheckShape([]byte(c.text))
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want %q", c.name, err, c.want)
+			continue
+		}
+		if IsTopLevelShapeError(err) != c.top {
+			t.Errorf("%s: top level %v, want %v (%v)", c.name, !c.top, c.top, err)
+		}
+	}
+}
