@@ -193,11 +193,7 @@ func TestBadInputs(t *testing.T) {
 			cmd.Dir = c.dir
 			var se strings.Builder
 			cmd.Stderr = &se
-			err := cmd.Run()
-			code := 0
-			if ee, ok := err.(*exec.ExitError); ok {
-				code = ee.ExitCode()
-			}
+			code := exitCode(cmd.Run())
 			stderr := se.String()
 			if code != c.code {
 				t.Errorf("exit %d, want %d; stderr: %s", code, c.code, stderr)

@@ -121,11 +121,7 @@ func TestBatchStoppedBySignal(t *testing.T) {
 		waitForStage(t, filepath.Join(out, "slow"))
 		time.Sleep(100 * time.Millisecond)
 		cmd.Process.Signal(sig)
-		err := cmd.Wait()
-		code := -1
-		if ee, ok := err.(*exec.ExitError); ok {
-			code = ee.ExitCode()
-		}
+		code := exitCode(cmd.Wait())
 		if code != 128+int(sig) {
 			t.Errorf("%v: exit %d, want %d; stderr %s", sig, code, 128+int(sig), se.String())
 		}

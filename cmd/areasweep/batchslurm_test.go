@@ -43,10 +43,8 @@ func runBinEnv(t *testing.T, env []string, args ...string) (string, string, int)
 		}
 		t.Fatalf("%v did not end within %v: the cluster did not run the jobs (busy with other jobs, or down); queue:\n%s\nstdout %s\nstderr %s", args, clusterWait, queue, so.String(), se.String())
 	}
-	code := 0
-	if ee, ok := err.(*exec.ExitError); ok {
-		code = ee.ExitCode()
-	} else if err != nil {
+	code := exitCode(err)
+	if code < 0 {
 		t.Fatalf("run %v: %v", args, err)
 	}
 	return so.String(), se.String(), code

@@ -44,14 +44,24 @@ func runBin(t *testing.T, args ...string) (string, string, int) {
 	cmd := exec.Command(areasweepBin, args...)
 	var so, se bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &so, &se
-	err := cmd.Run()
-	code := 0
-	if ee, ok := err.(*exec.ExitError); ok {
-		code = ee.ExitCode()
-	} else if err != nil {
-		t.Fatalf("run %v: %v", args, err)
+	code := exitCode(cmd.Run())
+	if code < 0 {
+		t.Fatalf("run %v: did not start or was not waited for", args)
 	}
 	return so.String(), se.String(), code
+}
+
+// exitCode is the exit code of a finished command from the error its Run
+// or Wait returned: 0 for none, the code of an exit error, -1 when the
+// command did not start or its end could not be read.
+func exitCode(err error) int {
+	if err == nil {
+		return 0
+	}
+	if ee, ok := err.(*exec.ExitError); ok {
+		return ee.ExitCode()
+	}
+	return -1
 }
 
 // smallStudy is a tiny generated study on a latitude-longitude grid: 48 x

@@ -68,11 +68,7 @@ func TestSignalsKeepEarlierResults(t *testing.T) {
 			stage := waitForStage(t, out)
 			time.Sleep(100 * time.Millisecond) // inside the scoring
 			cmd.Process.Signal(sig)
-			err := cmd.Wait()
-			code := -1
-			if ee, ok := err.(*exec.ExitError); ok {
-				code = ee.ExitCode()
-			}
+			code := exitCode(cmd.Wait())
 			if code != 128+int(sig) {
 				t.Errorf("exit %d, want %d; stderr %s", code, 128+int(sig), se.String())
 			}
