@@ -17,7 +17,8 @@ import (
 // field left out or null (it reads as 0), a value of the wrong kind or
 // not JSON (NaN) reported without its place. Each problem names the
 // field's path, e.g. scores[4].auc. Absent fields and unknown keys are
-// let through (see walkObject).
+// let through (see walkObject), except the scores every build writes for
+// a scored model and extent (scoredFields).
 func CheckShape(data []byte) error {
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
@@ -26,6 +27,36 @@ func CheckShape(data []byte) error {
 	}
 	if _, err := dec.Token(); err != io.EOF {
 		return errors.New("more JSON follows the results object")
+	}
+	return checkScoredFields(data)
+}
+
+// scoredFields are the fields every build of this schema writes for a
+// scored model and extent: one missing was removed by hand, and decoding
+// would read its number as 0.
+var scoredFields = []string{"auc", "auc_unweighted", "auc_se", "cells", "area_km2", "test_points", "train_points"}
+
+// checkScoredFields refuses a scored entry of scores that lacks one of
+// scoredFields, naming its path, model and extent.
+func checkScoredFields(data []byte) error {
+	var doc struct {
+		Scores []map[string]json.RawMessage `json:"scores"`
+	}
+	if err := json.Unmarshal(data, &doc); err != nil {
+		return nil // the walk has read it: nothing more to say here
+	}
+	for i, sc := range doc.Scores {
+		if string(sc["scored"]) != "true" {
+			continue
+		}
+		for _, k := range scoredFields {
+			if _, ok := sc[k]; !ok {
+				var model, extent string
+				json.Unmarshal(sc["model"], &model)
+				json.Unmarshal(sc["extent"], &extent)
+				return fmt.Errorf("scores[%d].%s is missing for model %s on extent %s; a run writes it for every scored model and extent", i, k, cutShape(model), cutShape(extent))
+			}
+		}
 	}
 	return nil
 }

@@ -18,6 +18,10 @@ func TestCheckShape(t *testing.T) {
 	if err := CheckShape(data); err != nil {
 		t.Fatalf("sample: %v", err)
 	}
+	// An unscored entry may lack its scores.
+	if err := CheckShape([]byte(`{"schema_version": 3, "scores": [{"model": "m", "extent": "e", "scored": false, "not_scored": "no test points inside this extent"}]}`)); err != nil {
+		t.Errorf("unscored entry without scores: %v", err)
+	}
 	for _, c := range []struct {
 		name, text, want string
 		top              bool
@@ -29,6 +33,8 @@ func TestCheckShape(t *testing.T) {
 		{"trailing", `{"schema_version": 3} {}`, "more JSON follows", false},
 		{"deep", `{"schema_version": 3, "x_note": ` + strings.Repeat("[", 40) + strings.Repeat("]", 40) + `}`, "nested more than", false},
 		{"array", `[1, 2]`, "the top level", true},
+		{"scored without auc", `{"schema_version": 3, "scores": [{"model": "m", "extent": "base", "scored": true, "auc_unweighted": 0.7, "auc_se": 0.01, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3}]}`,
+			"scores[0].auc is missing for model m on extent base", false},
 	} {
 		err := CheckShape([]byte(c.text))
 		if err == nil || !strings.Contains(err.Error(), c.want) {
