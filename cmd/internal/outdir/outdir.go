@@ -457,12 +457,7 @@ func (d *Dir) release() {
 	}
 	d.removeCreated()
 	active.mu.Lock()
-	for i, x := range active.dirs {
-		if x == d {
-			active.dirs = append(active.dirs[:i], active.dirs[i+1:]...)
-			break
-		}
-	}
+	active.dirs = slices.DeleteFunc(active.dirs, func(x *Dir) bool { return x == d })
 	active.mu.Unlock()
 }
 
@@ -678,11 +673,6 @@ func (s *Staged) remove() {
 		time.Sleep(10 * time.Millisecond)
 	}
 	activeStaged.mu.Lock()
-	for i, x := range activeStaged.list {
-		if x == s {
-			activeStaged.list = append(activeStaged.list[:i], activeStaged.list[i+1:]...)
-			break
-		}
-	}
+	activeStaged.list = slices.DeleteFunc(activeStaged.list, func(x *Staged) bool { return x == s })
 	activeStaged.mu.Unlock()
 }
