@@ -140,17 +140,7 @@ echo run >>"$AREASWEEP_OUT/../runs-$AREASWEEP_SHARD"
 	if err := os.WriteFile(filepath.Join(dir, "fail"), nil, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	run := func(k int) (int, string) {
-		c := exec.Command("bash", f.Array)
-		c.Env = append(os.Environ(), "SLURM_ARRAY_TASK_ID="+strconv.Itoa(k))
-		out, err := c.CombinedOutput()
-		if ee, ok := err.(*exec.ExitError); ok {
-			return ee.ExitCode(), string(out)
-		} else if err != nil {
-			t.Fatal(err)
-		}
-		return 0, string(out)
-	}
+	run := func(k int) (int, string) { return runArrayTask(t, f.Array, k) }
 	for k := 1; k <= 4; k++ {
 		code, out := run(k)
 		if (k == 4) != (code == 7) {
@@ -218,17 +208,7 @@ printf 'settings\tabc\nstudy\t%s\n' "$AREASWEEP_STUDY" >"$AREASWEEP_OUT/` + Mark
 	if err := os.MkdirAll(kept, 0o755); err != nil {
 		t.Fatal(err)
 	}
-	run := func(k int) (int, string) {
-		c := exec.Command("bash", f.Array)
-		c.Env = append(os.Environ(), "SLURM_ARRAY_TASK_ID="+strconv.Itoa(k), "SLURM_ARRAY_JOB_ID=77")
-		out, err := c.CombinedOutput()
-		if ee, ok := err.(*exec.ExitError); ok {
-			return ee.ExitCode(), string(out)
-		} else if err != nil {
-			t.Fatal(err)
-		}
-		return 0, string(out)
-	}
+	run := func(k int) (int, string) { return runArrayTask(t, f.Array, k, "SLURM_ARRAY_JOB_ID=77") }
 	if code, out := run(1); code != 0 {
 		t.Fatalf("task 1: exit %d: %s", code, out)
 	}
@@ -251,4 +231,19 @@ printf 'settings\tabc\nstudy\t%s\n' "$AREASWEEP_STUDY" >"$AREASWEEP_OUT/` + Mark
 	if _, err := os.Stat(kept); err != nil {
 		t.Errorf("the failed task removed a folder that existed before it: %v", err)
 	}
+}
+
+// runArrayTask runs the array script as task k of its job array would run
+// (SLURM_ARRAY_TASK_ID=k, plus env), returning its exit code and output.
+func runArrayTask(t *testing.T, script string, k int, env ...string) (int, string) {
+	t.Helper()
+	c := exec.Command("bash", script)
+	c.Env = append(append(os.Environ(), "SLURM_ARRAY_TASK_ID="+strconv.Itoa(k)), env...)
+	out, err := c.CombinedOutput()
+	if ee, ok := err.(*exec.ExitError); ok {
+		return ee.ExitCode(), string(out)
+	} else if err != nil {
+		t.Fatal(err)
+	}
+	return 0, string(out)
 }
