@@ -273,6 +273,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	notRaster := f.file("notraster.tif", "this is text, not a raster\n")
 	good, _ := os.ReadFile(f.model)
 	truncated := f.file("truncated.tif", string(good[:len(good)*2/3]))
+	// A copy of the model with a nodata value set in an auxiliary file
+	// only (as gdal_edit.py -a_nodata 0 leaves it on a format that cannot
+	// hold one): GDAL would read it, areasweep does not.
+	auxNoData := f.file("auxnodata.tif", string(good))
+	f.file("auxnodata.tif.aux.xml", `<PAMDataset><PAMRasterBand band="1"><NoDataValue>0</NoDataValue></PAMRasterBand></PAMDataset>`)
 	shifted := f.rasterWith(t, "shifted.tif", [6]float64{10.5, 0.25, 0, 48, 0, -0.25}, wgs, ridge)
 	// A sparse grid of 4096 x 16 million cells (within the grid size
 	// limits) run with 100 region buffers: each extent keeps a slice of runs
@@ -556,6 +561,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region of 0 bytes", f.withRegion(f.file("zero.gpkg", "")), 2, []string{"region", "zero.gpkg", "empty (0 bytes)"}, "", ""},
 		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
 		{"model: an ASCII grid without .prj", f.withModel(f.file("noprj.asc", "ncols 2\nnrows 2\nxllcorner 10\nyllcorner 40\ncellsize 0.25\n1 2\n3 4\n")), 2, []string{"noprj.asc", "no coordinate reference system", "noprj.prj", "gdal_translate -a_srs"}, "", ""},
+		{"model with nodata in an .aux.xml only", f.withModel(auxNoData), 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0", "never reads .aux.xml", "gdal_translate " + auxNoData}, "", ""},
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},

@@ -70,6 +70,11 @@ func (s *Study) checkFiles() error {
 // model and null lies on the same grid.
 func (s *Study) openGrid() error {
 	for i, m := range s.models {
+		if what := auxProblem(m.Path); what != "" {
+			out := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.tif"
+			return fault.BadInput(fmt.Errorf("model %s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
+				"copy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, m.Path, out, out))
+		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
 			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {

@@ -1,0 +1,150 @@
+package pipeline
+
+import (
+	"encoding/xml"
+	"fmt"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+
+	"areasweep/extent"
+)
+
+// pamDataset is the part of a GDAL auxiliary metadata file (NAME.aux.xml,
+// GDAL's "PAM" format) that changes how a raster's cells are read: the
+// CRS, the georeferencing, and the first band's nodata value, scale and
+// offset. Statistics, histograms and other metadata do not.
+type pamDataset struct {
+	XMLName      xml.Name  `xml:"PAMDataset"`
+	SRS          *string   `xml:"SRS"`
+	GeoTransform *string   `xml:"GeoTransform"`
+	Bands        []pamBand `xml:"PAMRasterBand"`
+}
+
+type pamBand struct {
+	Band   string  `xml:"band,attr"`
+	NoData *string `xml:"NoDataValue"`
+	Offset *string `xml:"Offset"`
+	Scale  *string `xml:"Scale"`
+}
+
+// auxProblem says what the raster's auxiliary file path+".aux.xml" sets
+// that the raster itself does not, or "" when there is no such file or it
+// sets nothing of the kind. areasweep turns GDAL's auxiliary files off (so
+// that reading an input never writes one beside it; extent.Register), so
+// a nodata value, scale, offset, CRS or georeferencing kept only there
+// would be ignored: nodata cells scored as data, values unscaled, the
+// grid without a CRS. A file that repeats what the raster holds (as
+// desktop GIS tools write it, with statistics) is no problem. A file that
+// is not GDAL's XML is left alone: GDAL would not read it either.
+func auxProblem(path string) string {
+	data, err := os.ReadFile(path + ".aux.xml")
+	if err != nil {
+		return ""
+	}
+	var pam pamDataset
+	if xml.Unmarshal(data, &pam) != nil {
+		return ""
+	}
+	ds, err := extent.OpenRaster(path)
+	if err != nil {
+		return "" // OpenGrid reports it
+	}
+	defer ds.Close()
+	var set []string
+	if pam.SRS != nil && strings.TrimSpace(*pam.SRS) != "" && strings.TrimSpace(ds.Projection()) == "" {
+		set = append(set, "the CRS")
+	}
+	if pam.GeoTransform != nil {
+		if gt, ok := parseGeoTransform(*pam.GeoTransform); ok {
+			own, err := ds.GeoTransform()
+			if err != nil || !sameGeoTransform(gt, own) {
+				set = append(set, "the georeferencing")
+			}
+		}
+	}
+	bands := ds.Bands()
+	for _, b := range pam.Bands {
+		if strings.TrimSpace(b.Band) != "1" || len(bands) == 0 {
+			continue
+		}
+		if b.NoData != nil {
+			if v, ok := parsePAMNumber(*b.NoData); ok {
+				own, has := bands[0].NoData()
+				if !has || !(own == v || math.IsNaN(own) && math.IsNaN(v)) {
+					set = append(set, fmt.Sprintf("the nodata value %s", strings.TrimSpace(*b.NoData)))
+				}
+			}
+		}
+		st := bands[0].Structure()
+		scale, offset := st.Scale, st.Offset
+		if scale == 0 {
+			scale = 1
+		}
+		if b.Scale != nil {
+			if v, ok := parsePAMNumber(*b.Scale); ok && v != scale {
+				set = append(set, fmt.Sprintf("the scale %s", strings.TrimSpace(*b.Scale)))
+			}
+		}
+		if b.Offset != nil {
+			if v, ok := parsePAMNumber(*b.Offset); ok && v != offset {
+				set = append(set, fmt.Sprintf("the offset %s", strings.TrimSpace(*b.Offset)))
+			}
+		}
+	}
+	if len(set) == 0 {
+		return ""
+	}
+	what := set[0]
+	if len(set) > 1 {
+		what = strings.Join(set[:len(set)-1], ", ") + " and " + set[len(set)-1]
+	}
+	return what
+}
+
+// parsePAMNumber reads a number as GDAL writes it in an auxiliary file
+// ("-9999", "3.4e+38", "nan", "inf", "-inf").
+func parsePAMNumber(s string) (float64, bool) {
+	s = strings.TrimSpace(s)
+	switch strings.ToLower(s) {
+	case "nan":
+		return math.NaN(), true
+	case "inf", "+inf":
+		return math.Inf(1), true
+	case "-inf":
+		return math.Inf(-1), true
+	}
+	v, err := strconv.ParseFloat(s, 64)
+	return v, err == nil
+}
+
+// parseGeoTransform reads GDAL's "a, b, c, d, e, f" geotransform text.
+func parseGeoTransform(s string) ([6]float64, bool) {
+	var gt [6]float64
+	parts := strings.Split(s, ",")
+	if len(parts) != 6 {
+		return gt, false
+	}
+	for i, p := range parts {
+		v, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil {
+			return gt, false
+		}
+		gt[i] = v
+	}
+	return gt, true
+}
+
+// sameGeoTransform reports whether two geotransforms place every cell at
+// the same point up to the 16 significant digits GDAL writes them with:
+// each coefficient equal within 1e-12 of the largest magnitude of its
+// pair (our choice, far below any cell size).
+func sameGeoTransform(a, b [6]float64) bool {
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 1e-12*math.Max(math.Abs(a[i]), math.Abs(b[i])) {
+			return false
+		}
+	}
+	return true
+}
