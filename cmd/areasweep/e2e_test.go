@@ -905,3 +905,77 @@ func TestProjectedEqualAreaGrid(t *testing.T) {
 		t.Error("no nested rings on the projected grid")
 	}
 }
+
+// TestMultiBandModelWarns: a model raster with several bands is scored on
+// its first band, exactly as a one-band raster holding that band, and the
+// run says so (README: Model rasters).
+func TestMultiBandModelWarns(t *testing.T) {
+	s := newSmallStudy(t)
+	multi := filepath.Join(s.dir, "stack.tif")
+	ds, err := godal.Create(godal.GTiff, multi, 2, godal.Float32, s.w, s.h)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(s.gt)
+	ds.SetProjection(`GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433],AUTHORITY["EPSG","4326"]]`)
+	for k, b := range ds.Bands() {
+		b.SetNoData(smallNoData)
+		buf := make([]float32, s.w*s.h)
+		for i, v := range s.vals {
+			switch {
+			case math.IsNaN(v):
+				buf[i] = smallNoData
+			case k == 0:
+				buf[i] = float32(v)
+			default:
+				buf[i] = float32(1 - v) // the second band ranks the other way
+			}
+		}
+		if err := b.Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	aucs := func(model string) (map[string]float64, []string) {
+		out := filepath.Join(t.TempDir(), "out")
+		_, se, code := runBin(t, "run", "--model", "m="+model, "--occurrences", s.occ, "--region", s.region,
+			"--iterations", "5", "--no-distance-null", "--quiet", "--out", out)
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", model, code, se)
+		}
+		res := loadResults(t, out)
+		m := map[string]float64{}
+		for _, sc := range res.Scores {
+			if sc.Scored {
+				m[sc.Extent] = sc.AUC
+			}
+		}
+		return m, res.Warnings
+	}
+	one, w1 := aucs(s.model)
+	two, w2 := aucs(multi)
+	if len(one) == 0 || len(one) != len(two) {
+		t.Fatalf("scored extents: %d one-band, %d two-band", len(one), len(two))
+	}
+	for e, a := range one {
+		if two[e] != a {
+			t.Errorf("%s: AUC %v on the two-band raster, %v on its first band alone", e, two[e], a)
+		}
+	}
+	warned := func(ws []string) bool {
+		for _, w := range ws {
+			if strings.Contains(w, "has 2 bands; only the first is scored") && strings.Contains(w, "gdal_translate -b 2") {
+				return true
+			}
+		}
+		return false
+	}
+	if !warned(w2) {
+		t.Errorf("no warning about the second band: %q", w2)
+	}
+	if warned(w1) {
+		t.Errorf("one-band raster warned about bands: %q", w1)
+	}
+}

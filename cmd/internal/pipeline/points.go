@@ -97,6 +97,10 @@ func (s *Study) openGrid() error {
 			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
 				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, m.Path, strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif"))
 		}
+		if n := bandCount(m.Path); n > 1 {
+			stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
+			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s_b2.tif, and give that file)", m.Name, m.Path, n, m.Path, stem))
+		}
 		if i == 0 {
 			s.grid = g
 			continue
@@ -111,6 +115,17 @@ func (s *Study) openGrid() error {
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
 	return nil
+}
+
+// bandCount returns the number of bands of the raster at path (0 when
+// it cannot be opened: OpenGrid has reported that).
+func bandCount(path string) int {
+	ds, err := extent.OpenRaster(path)
+	if err != nil {
+		return 0
+	}
+	defer ds.Close()
+	return len(ds.Bands())
 }
 
 // maskProblem says how the first band of the raster at path marks cells
