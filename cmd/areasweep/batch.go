@@ -416,7 +416,7 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 		if len(c.Changed) > 1 {
 			remedy = "restore the files"
 		}
-		return stateStale, staleness{"from other inputs (" + strings.Join(what, "; ") + " since it finished)", remedy}, nil
+		return stateStale, staleness{"from other inputs (since it finished, " + strings.Join(what, "; ") + ")", remedy}, nil
 	}
 	if c.Refreshed != nil {
 		m.SetInputs(c.Refreshed)
@@ -502,9 +502,14 @@ const maxFailuresShown = 20
 // and with --only, as in a scheduler task's log, no summary lists them).
 func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
 	var ids, lines []string
+	stale := 0
 	for i, err := range errs {
 		if err == nil {
 			continue
+		}
+		var se *staleError
+		if errors.As(err, &se) {
+			stale++
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -518,9 +523,22 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	if len(o.Only) == 0 {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
 	}
-	return fmt.Errorf("%d of %d studies failed: %s; %srunning the same command again retries them:%s",
-		failed, len(studies), strings.Join(ids, ", "), where, strings.Join(lines, ""))
+	again := "running the same command again retries them"
+	switch {
+	case stale == failed:
+		again = "--force runs them again (they were made from other settings or inputs)"
+	case stale > 0:
+		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
+	}
+	return fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, ""))
 }
+
+// staleError is the error of a finished study made from other settings or
+// inputs than the table's now, not run again without --force.
+type staleError struct{ msg string }
+
+func (e *staleError) Error() string { return e.msg }
 
 // failurePath is where a study's last error is kept, so that a summary
 // written later (by the scheduler's merge job) can show it.
@@ -618,7 +636,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 			p.line(st.id, "already finished, skipped")
 			continue
 		case s == stateStale && !o.Force:
-			errs[i] = fmt.Errorf("%s was made %s; add --force to run it again, or %s", st.dir, why.why, why.remedy)
+			errs[i] = &staleError{fmt.Sprintf("%s was made %s; add --force to run it again, or %s", st.dir, why.why, why.remedy)}
 			continue
 		case s == stateStale || o.Force:
 			// --force also lets a study run into a folder left without

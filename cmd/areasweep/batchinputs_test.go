@@ -129,7 +129,7 @@ func TestBatchInputReplaced(t *testing.T) {
 		t.Fatalf("occ.csv replaced: exit %d, want 1 (as for a changed row): %s", code, se)
 	}
 	for _, want := range []string{"b: already finished, skipped", "1 of 2 studies failed: a",
-		"a: " + filepath.Join(out, "a") + " was made from other inputs (occurrences file " + occ + " has other content (SHA-256 ", "add --force to run it again, or restore the file"} {
+		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs them again (they were made from other settings or inputs)"} {
 		if !strings.Contains(se, want) {
 			t.Errorf("occ.csv replaced: stderr lacks %q:\n%s", want, se)
 		}
@@ -160,7 +160,7 @@ func TestBatchInputReplaced(t *testing.T) {
 	auxBytes, _ := os.ReadFile(aux)
 	os.Remove(aux)
 	_, se, code = runBin(t, "batch", table, "--out", out)
-	if code != 1 || !strings.Contains(se, "model:m file "+aux+" was removed") || !strings.Contains(se, "2 of 2 studies failed") {
+	if code != 1 || !strings.Contains(se, "the model m file "+aux+" was removed") || !strings.Contains(se, "2 of 2 studies failed") {
 		t.Errorf("sidecar removed: exit %d, want 1 naming %s as removed for both studies: %s", code, aux, se)
 	}
 	if err := os.WriteFile(aux, auxBytes, 0o644); err != nil {
@@ -273,7 +273,7 @@ func TestSlurmPendingInputReplaced(t *testing.T) {
 			var ids []string
 			for _, s := range stale {
 				ids = append(ids, s.st.id)
-				if !strings.Contains(s.why.why, "occurrences file "+occ+" has other content") {
+				if !strings.Contains(s.why.why, "the occurrences file "+occ+" holds other content") {
 					t.Errorf("shards %d: a stale because %q; want occ.csv named", shards, s.why.why)
 				}
 			}

@@ -92,13 +92,15 @@ type InputChange struct {
 	SHA256  string
 }
 
-// String says what changed, e.g. "occurrences /data/occ.csv has other
-// content (SHA-256 0123456789ab when the study finished, ba9876543210 now)".
+// String says what changed, e.g. "the occurrences file /data/occ.csv
+// holds other content (SHA-256 0123456789ab then, ba9876543210 now)" or
+// "the model m file /data/m.tif.aux.xml was removed".
 func (c InputChange) String() string {
+	what := "the " + strings.ReplaceAll(c.File.Role, ":", " ") + " file " + c.File.Path
 	if c.Removed {
-		return fmt.Sprintf("%s file %s was removed", c.File.Role, c.File.Path)
+		return what + " was removed"
 	}
-	return fmt.Sprintf("%s file %s has other content (SHA-256 %s when the study finished, %s now)", c.File.Role, c.File.Path, short(c.File.SHA256), short(c.SHA256))
+	return fmt.Sprintf("%s holds other content (SHA-256 %s then, %s now)", what, short(c.File.SHA256), short(c.SHA256))
 }
 
 func short(sum string) string { return sum[:min(12, len(sum))] }

@@ -51,17 +51,17 @@ func TestCheckInputs(t *testing.T) {
 				t.Fatal(err)
 			}
 			os.Chtimes(p, later, later)
-		}, changed: "occurrences file %s has other content (SHA-256 "},
+		}, changed: "the occurrences file %s holds other content (SHA-256 "},
 		{name: "other size", change: func(t *testing.T, p string) {
 			if err := os.WriteFile(p, []byte("lon,lat\n1,2\n3,4\n"), 0o644); err != nil {
 				t.Fatal(err)
 			}
-		}, changed: "occurrences file %s has other content"},
+		}, changed: "the occurrences file %s holds other content"},
 		{name: "removed", change: func(t *testing.T, p string) {
 			if err := os.Remove(p); err != nil {
 				t.Fatal(err)
 			}
-		}, changed: "occurrences file %s was removed"},
+		}, changed: "the occurrences file %s was removed"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			p := filepath.Join(t.TempDir(), "occ.csv")
