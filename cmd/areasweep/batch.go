@@ -403,6 +403,7 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 	if err != nil {
 		return statePending, staleness{}, err
 	}
+	c.Changed = append(c.Changed, addedSidecars(files)...)
 	if len(c.Changed) > 0 {
 		var what []string
 		for i, ch := range c.Changed {
@@ -416,6 +417,9 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 		if len(c.Changed) > 1 {
 			remedy = "restore the files"
 		}
+		if c.Changed[0].Added {
+			remedy = "remove the file again"
+		}
 		return stateStale, staleness{"from other inputs (since it finished, " + strings.Join(what, "; ") + ")", remedy}, nil
 	}
 	if c.Refreshed != nil {
@@ -423,6 +427,42 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 		batch.WriteMarker(dir, m) // best effort: without it the next check hashes the file again
 	}
 	return stateDone, staleness{}, nil
+}
+
+// addedSidecars lists the files that inputs.Sidecars finds now beside a
+// recorded input and that the marker does not record: put there since
+// the study ran (a .prj beside a shapefile changes its coordinates). The
+// first file recorded for a role is the input itself (pipeline.IO.Inputs
+// gives each input before its sidecars); the occurrence table has none.
+// A few stat calls per input; the files GDAL lists itself (a virtual
+// raster's sources) are recorded and checked, but a new one is not looked
+// for (that would open every dataset).
+func addedSidecars(files []batch.InputFile) []batch.InputChange {
+	recorded := map[string]bool{}
+	for _, f := range files {
+		recorded[filepath.Clean(f.Path)] = true
+	}
+	var added []batch.InputChange
+	seen := map[string]bool{}
+	for _, f := range files {
+		if seen[f.Role] {
+			continue
+		}
+		seen[f.Role] = true
+		kind := inputs.VectorSidecars
+		switch {
+		case f.Role == "occurrences":
+			continue
+		case strings.HasPrefix(f.Role, "model:") || strings.HasPrefix(f.Role, "null:"):
+			kind = inputs.RasterSidecars
+		}
+		for _, p := range inputs.Sidecars(f.Path, kind) {
+			if !recorded[filepath.Clean(p)] {
+				added = append(added, batch.InputChange{File: batch.InputFile{Role: f.Role, Path: p}, Added: true})
+			}
+		}
+	}
+	return added
 }
 
 // markerInputs converts the files a run hashed into the marker's records,

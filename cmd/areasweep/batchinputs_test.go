@@ -68,7 +68,7 @@ func laterTime(t *testing.T, path string) {
 // not run again, listed as failed in the summary, exit 1 as for a
 // changed row; with --force: run again, other results. A sidecar file
 // removed: named as removed; restored with the same bytes: finished
-// again. A named input removed: the table check refuses it (exit 2). A
+// again. A sidecar added: named as added. A named input removed: the table check refuses it (exit 2). A
 // marker without input lines (an older areasweep's): finished, as before.
 func TestBatchInputReplaced(t *testing.T) {
 	dir, table := inputsStudy(t)
@@ -168,6 +168,18 @@ func TestBatchInputReplaced(t *testing.T) {
 	}
 	laterTime(t, aux)
 	batchOK("sidecar restored")
+
+	// A sidecar added: a world file beside the model.
+	tfw := filepath.Join(dir, "model.tfw")
+	if err := os.WriteFile(tfw, []byte("0.25\n0\n0\n-0.25\n10.125\n47.875\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code = runBin(t, "batch", table, "--out", out)
+	if code != 1 || !strings.Contains(se, "the model m file "+tfw+" was added") || !strings.Contains(se, "or remove the file again") {
+		t.Errorf("sidecar added: exit %d, want 1 naming %s as added: %s", code, tfw, se)
+	}
+	os.Remove(tfw)
+	batchOK("added sidecar removed")
 
 	// A named input removed: refused with the table's problems.
 	os.Rename(occ, occ+".away")
@@ -294,5 +306,45 @@ func TestSlurmPendingInputReplaced(t *testing.T) {
 		if err := os.WriteFile(occ, b, 0o644); err != nil {
 			t.Fatal(err)
 		}
+	}
+}
+
+// TestAddedSidecars: the files found beside a recorded input that the
+// marker does not record, by the input's kind; the occurrence table has
+// none, and a recorded sidecar is not new.
+func TestAddedSidecars(t *testing.T) {
+	dir := t.TempDir()
+	for _, n := range []string{"r.shp", "r.shx", "r.dbf", "r.prj", "m.tif", "m.tif.aux.xml", "m.tfw", "occ.csv", "occ.prj"} {
+		if err := os.WriteFile(filepath.Join(dir, n), []byte("x"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f := func(role, name string) batch.InputFile {
+		return batch.InputFile{Role: role, Path: filepath.Join(dir, name)}
+	}
+	for _, c := range []struct {
+		name  string
+		files []batch.InputFile
+		want  []string
+	}{
+		{"all recorded", []batch.InputFile{f("region", "r.shp"), f("region", "r.dbf"), f("region", "r.prj"), f("region", "r.shx")}, nil},
+		{"a shapefile's .prj added", []batch.InputFile{f("region", "r.shp"), f("region", "r.dbf"), f("region", "r.shx")}, []string{"region r.prj"}},
+		{"a raster's world file and PAM file added", []batch.InputFile{f("model:m", "m.tif")}, []string{"model:m m.tfw", "model:m m.tif.aux.xml"}},
+		{"a null is a raster too", []batch.InputFile{f("null:n", "m.tif"), f("null:n", "m.tfw")}, []string{"null:n m.tif.aux.xml"}},
+		{"the occurrence table has none", []batch.InputFile{f("occurrences", "occ.csv")}, nil},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var got []string
+			for _, a := range addedSidecars(c.files) {
+				if !a.Added {
+					t.Errorf("%v not marked as added", a)
+				}
+				got = append(got, a.File.Role+" "+filepath.Base(a.File.Path))
+			}
+			slices.Sort(got)
+			if !slices.Equal(got, c.want) {
+				t.Errorf("added %v, want %v", got, c.want)
+			}
+		})
 	}
 }

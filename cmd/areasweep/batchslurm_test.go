@@ -177,4 +177,15 @@ func TestBatchOnClusterInputReplaced(t *testing.T) {
 	if got, _ := os.ReadFile(results); len(got) == 0 || bytes.Equal(got, first) {
 		t.Errorf("--force: a's results.json is missing or the old one\n%s", dumpLogs(logs))
 	}
+	// The array script kept the batch's input lines beside its job line,
+	// so the next run finds the study finished.
+	m, err := batch.ReadMarker(filepath.Join(out, "a"))
+	files, ferr := m.Inputs()
+	if err != nil || ferr != nil || len(files) == 0 || m["job"] == "" {
+		t.Errorf("a's marker after the task: %v (%v, %v); want input lines and the task's job line", m, err, ferr)
+	}
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm")
+	if code != 0 || !strings.Contains(so, "2 tasks, 0 not finished") || strings.Contains(so, "not submitted") {
+		t.Errorf("after --force: exit %d\nstdout %s\nstderr %s", code, so, se)
+	}
 }

@@ -84,12 +84,15 @@ func (m Marker) Inputs() ([]InputFile, error) {
 	return files, nil
 }
 
-// InputChange is a recorded input file that is not as the run read it.
+// InputChange is a recorded input file that is not as the run read it,
+// or a file that was not there when the run read the input it belongs to.
 type InputChange struct {
-	File InputFile // as recorded
-	// Removed: the file is gone. Otherwise SHA256 is its content's now.
-	Removed bool
-	SHA256  string
+	File InputFile // as recorded; for Added, its role and path only
+	// Removed: the file is gone. Added: the file was not recorded (a
+	// .prj put beside a shapefile since). Otherwise SHA256 is its
+	// content's now.
+	Removed, Added bool
+	SHA256         string
 }
 
 // String says what changed, e.g. "the occurrences file /data/occ.csv
@@ -97,8 +100,11 @@ type InputChange struct {
 // "the model m file /data/m.tif.aux.xml was removed".
 func (c InputChange) String() string {
 	what := "the " + strings.ReplaceAll(c.File.Role, ":", " ") + " file " + c.File.Path
-	if c.Removed {
+	switch {
+	case c.Removed:
 		return what + " was removed"
+	case c.Added:
+		return what + " was added"
 	}
 	return fmt.Sprintf("%s holds other content (SHA-256 %s then, %s now)", what, short(c.File.SHA256), short(c.SHA256))
 }
