@@ -98,6 +98,21 @@ func TestBatchInputReplaced(t *testing.T) {
 	if want := []string{"model:m model.tif", "model:m model.tif.aux.xml", "occurrences occ.csv", "region region.geojson"}; !slices.Equal(roles, want) {
 		t.Fatalf("marker records %v, want %v", roles, want)
 	}
+	// The checksums are the run's own, those results.json records.
+	var want []string
+	for _, in := range loadResults(t, filepath.Join(out, "a")).Inputs {
+		want = append(want, in.Path+" "+in.SHA256)
+		for _, sc := range in.Sidecars {
+			want = append(want, sc.Path+" "+sc.SHA256)
+		}
+	}
+	var got []string
+	for _, f := range files {
+		got = append(got, f.Path+" "+f.SHA256)
+	}
+	if !slices.Equal(got, want) {
+		t.Errorf("marker records %v, results.json's inputs %v", got, want)
+	}
 	results := filepath.Join(out, "a", "results.json")
 	first, err := os.ReadFile(results)
 	if err != nil {
