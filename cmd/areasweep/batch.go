@@ -90,7 +90,9 @@ summary_methods.md and summary_figures/.
 
 A finished study's folder holds the completion marker ` + "`.areasweep-done`" + `; running
 the same command again skips those studies and runs the others (failed ones
-included). Exit status: 0 when every study has results, 1 when at least one failed
+included). A finished study whose table row changed, or one of whose input files
+was replaced by other content or removed since, is named and not run again
+without --force. Exit status: 0 when every study has results, 1 when at least one failed
 (the summary lists each with its error), 2 for a bad table or flags (nothing ran).`,
 		Example: batchExample,
 		Args:    cobra.MaximumNArgs(1),
@@ -126,7 +128,7 @@ included). Exit status: 0 when every study has results, 1 when at least one fail
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
 	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
-	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
@@ -184,6 +186,9 @@ type batchStudy struct {
 	opts     RunOptions
 	settings string // batch.SettingsHash of the settings
 	dir      string // --out/<id>
+	// inputs compares the input files a marker records with the files
+	// now; one for the whole batch, shared by its studies.
+	inputs *batch.Checker
 }
 
 // resolveBatch reads the table and resolves every row into run options,
@@ -205,6 +210,7 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 		reserved[strings.ToLower(n)] = true
 	}
 	var studies []*batchStudy
+	check := &batch.Checker{}
 	for _, row := range b.Studies {
 		bad := func(column string, err error) {
 			errs = append(errs, &inputs.BatchError{File: b.File, Line: row.Line, Column: column, Study: row.ID, Err: err})
@@ -224,7 +230,7 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 			bad(col, err)
 			continue
 		}
-		st := &batchStudy{id: row.ID, line: row.Line, opts: ro, dir: ro.Out}
+		st := &batchStudy{id: row.ID, line: row.Line, opts: ro, dir: ro.Out, inputs: check}
 		st.settings = batch.SettingsHash(canonicalSettings(ro.Options))
 		studies = append(studies, st)
 	}
@@ -354,22 +360,123 @@ type studyState int
 const (
 	statePending studyState = iota // to run
 	stateDone                      // finished earlier (marker): skipped
-	stateStale                     // finished earlier from other settings
+	stateStale                     // finished earlier from other settings or inputs
 )
 
-// state reads a study folder's marker.
-func (st *batchStudy) state() (studyState, error) {
-	m, err := batch.ReadMarker(st.dir)
-	if err != nil {
-		return statePending, err
-	}
+// staleness says why a study or shard is stale and what to do.
+type staleness struct {
+	// why completes "<folder> was made ...".
+	why string
+	// remedy is the way out besides --force.
+	remedy string
+}
+
+// state reads a study folder's marker (see markerState).
+func (st *batchStudy) state() (studyState, staleness, error) {
+	return st.markerState(st.dir)
+}
+
+// markerState reads the marker in dir, the folder of the study or of one
+// of its shards: none, pending; another settings checksum (the table row
+// changed), stale; an input file recorded in it removed or holding other
+// content than when the study finished (batch.Checker: only files whose
+// size or time changed are hashed), stale too; else done. A marker
+// without input lines (an older areasweep's) is done when its settings
+// match, as before. When some input was only touched (same content), the
+// marker is rewritten with the files' new times, best effort, so that the
+// next re-run needs no hashing.
+func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
+	m, err := batch.ReadMarker(dir)
 	switch {
+	case err != nil:
+		return statePending, staleness{}, err
 	case m == nil:
-		return statePending, nil
+		return statePending, staleness{}, nil
 	case m["settings"] != "" && m["settings"] != st.settings:
-		return stateStale, nil
+		return stateStale, staleness{"from other settings (the table row changed since it finished)", "remove the folder"}, nil
 	}
-	return stateDone, nil
+	files, err := m.Inputs()
+	if err != nil {
+		return stateStale, staleness{fmt.Sprintf("from inputs its completion marker does not tell (%v)", err), "remove the folder"}, nil
+	}
+	c, err := st.inputs.Check(files)
+	if err != nil {
+		return statePending, staleness{}, err
+	}
+	c.Changed = append(c.Changed, addedSidecars(files)...)
+	if len(c.Changed) > 0 {
+		var what []string
+		for i, ch := range c.Changed {
+			if i == 3 {
+				what = append(what, fmt.Sprintf("and %d more", len(c.Changed)-i))
+				break
+			}
+			what = append(what, ch.String())
+		}
+		remedy := "restore the file"
+		if len(c.Changed) > 1 {
+			remedy = "restore the files"
+		}
+		if c.Changed[0].Added {
+			remedy = "remove the file again"
+		}
+		return stateStale, staleness{"from other inputs (since it finished, " + strings.Join(what, "; ") + ")", remedy}, nil
+	}
+	if c.Refreshed != nil {
+		m.SetInputs(c.Refreshed)
+		batch.WriteMarker(dir, m) // best effort: without it the next check hashes the file again
+	}
+	return stateDone, staleness{}, nil
+}
+
+// addedSidecars lists the files that inputs.Sidecars finds now beside a
+// recorded input and that the marker does not record: put there since
+// the study ran (a .prj beside a shapefile changes its coordinates). The
+// first file recorded for a role is the input itself (pipeline.IO.Inputs
+// gives each input before its sidecars); the occurrence table has none.
+// A few stat calls per input; the files GDAL lists itself (a virtual
+// raster's sources) are recorded and checked, but a new one is not looked
+// for (that would open every dataset).
+func addedSidecars(files []batch.InputFile) []batch.InputChange {
+	recorded := map[string]bool{}
+	for _, f := range files {
+		recorded[filepath.Clean(f.Path)] = true
+	}
+	var added []batch.InputChange
+	seen := map[string]bool{}
+	for _, f := range files {
+		if seen[f.Role] {
+			continue
+		}
+		seen[f.Role] = true
+		kind := inputs.VectorSidecars
+		switch {
+		case f.Role == "occurrences":
+			continue
+		case strings.HasPrefix(f.Role, "model:") || strings.HasPrefix(f.Role, "null:"):
+			kind = inputs.RasterSidecars
+		}
+		for _, p := range inputs.Sidecars(f.Path, kind) {
+			if !recorded[filepath.Clean(p)] {
+				added = append(added, batch.InputChange{File: batch.InputFile{Role: f.Role, Path: p}, Added: true})
+			}
+		}
+	}
+	return added
+}
+
+// markerInputs converts the files a run hashed into the marker's records,
+// their paths made absolute (a sidecar's path may be relative as GDAL
+// gave it; the next check may run from another folder).
+func markerInputs(files []pipeline.InputFile) []batch.InputFile {
+	out := make([]batch.InputFile, len(files))
+	for i, f := range files {
+		out[i] = batch.InputFile{Role: f.Role, Path: f.Path, Size: f.Size, ModTime: f.ModTime, SHA256: f.SHA256}
+		if a, err := filepath.Abs(f.Path); err == nil {
+			out[i].Path = a
+		}
+	}
+	return out
 }
 
 // batchRun runs the batch: resolve, run what is not done, summarise.
@@ -397,7 +504,7 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	// folders as they are now.
 	for i, st := range studies {
 		if errs[i] != nil {
-			if s, _ := st.state(); s == stateDone {
+			if s, _, _ := st.state(); s == stateDone {
 				p.line(st.id, "finished by another run meanwhile")
 				errs[i] = nil
 			}
@@ -435,9 +542,14 @@ const maxFailuresShown = 20
 // and with --only, as in a scheduler task's log, no summary lists them).
 func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
 	var ids, lines []string
+	stale := 0
 	for i, err := range errs {
 		if err == nil {
 			continue
+		}
+		var se *staleError
+		if errors.As(err, &se) {
+			stale++
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -451,9 +563,22 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	if len(o.Only) == 0 {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
 	}
-	return fmt.Errorf("%d of %d studies failed: %s; %srunning the same command again retries them:%s",
-		failed, len(studies), strings.Join(ids, ", "), where, strings.Join(lines, ""))
+	again := "running the same command again retries them"
+	switch {
+	case stale == failed:
+		again = "--force runs them again (they were made from other settings or inputs)"
+	case stale > 0:
+		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
+	}
+	return fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, ""))
 }
+
+// staleError is the error of a finished study made from other settings or
+// inputs than the table's now, not run again without --force.
+type staleError struct{ msg string }
+
+func (e *staleError) Error() string { return e.msg }
 
 // failurePath is where a study's last error is kept, so that a summary
 // written later (by the scheduler's merge job) can show it.
@@ -542,7 +667,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
 	var todo []int
 	for i, st := range studies {
-		s, err := st.state()
+		s, why, err := st.state()
 		switch {
 		case err != nil:
 			errs[i] = err
@@ -551,7 +676,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 			p.line(st.id, "already finished, skipped")
 			continue
 		case s == stateStale && !o.Force:
-			errs[i] = fmt.Errorf("%s was made from other settings (the table row changed since it finished); add --force to run it again, or remove the folder", st.dir)
+			errs[i] = &staleError{fmt.Sprintf("%s was made %s; add --force to run it again, or %s", st.dir, why.why, why.remedy)}
 			continue
 		case s == stateStale || o.Force:
 			// --force also lets a study run into a folder left without
@@ -583,7 +708,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 			if o.SummaryOnly || (o.Shard > 0 && k != o.Shard) {
 				continue
 			}
-			switch s, err := shardState(o.Out, st, k); {
+			switch s, _, err := shardState(o.Out, st, k); {
 			case err != nil:
 				errs[i] = err
 			case s == stateDone:
@@ -603,13 +728,20 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 			continue
 		}
 		var missing []int
+		var stale error
 		for k := 1; k <= o.Shards; k++ {
-			if s, _ := shardState(o.Out, studies[i], k); s != stateDone {
+			s, why, _ := shardState(o.Out, studies[i], k)
+			if s != stateDone {
 				missing = append(missing, k)
+			}
+			if s == stateStale && stale == nil {
+				stale = fmt.Errorf("shard %d/%d was made %s; running the same command again runs it again", k, o.Shards, why.why)
 			}
 		}
 		if len(missing) > 0 {
-			errs[i] = readFailure(o.Out, studies[i], missing[0])
+			if errs[i] = stale; stale == nil {
+				errs[i] = readFailure(o.Out, studies[i], missing[0])
+			}
 			continue
 		}
 		merges = append(merges, unit{study: i, merge: true})
@@ -618,18 +750,11 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 	return errs
 }
 
-// shardState reads the marker of shard k of st.
-func shardState(out string, st *batchStudy, k int) (studyState, error) {
-	m, err := batch.ReadMarker(shardDir(out, st.id, k))
-	switch {
-	case err != nil:
-		return statePending, err
-	case m == nil:
-		return statePending, nil
-	case m["settings"] != "" && m["settings"] != st.settings:
-		return stateStale, nil
-	}
-	return stateDone, nil
+// shardState reads the marker of shard k of st (see markerState). A
+// shard's folder is the batch's own: a stale shard runs again without
+// --force.
+func shardState(out string, st *batchStudy, k int) (studyState, staleness, error) {
+	return st.markerState(shardDir(out, st.id, k))
 }
 
 // runUnits runs units within the limits (each needs its study's memory
@@ -696,16 +821,19 @@ func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units
 func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error {
 	po := st.opts.Options
 	po.Quiet, po.Version = true, version
-	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}}
+	var read []pipeline.InputFile
+	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f }}
 	if u.shard > 0 {
 		po.Out = shardDir(o.Out, st.id, u.shard)
-		if s, _ := shardState(o.Out, st, u.shard); s == stateStale {
+		if s, _, _ := shardState(o.Out, st, u.shard); s == stateStale {
 			po.Force = true
 		}
 		if err := pipeline.RunShard(ctx, po, pio, u.shard, o.Shards); err != nil {
 			return err
 		}
-		return batch.WriteMarker(po.Out, batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings})
+		m := batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
+		m.SetInputs(markerInputs(read))
+		return batch.WriteMarker(po.Out, m)
 	}
 	if u.merge {
 		files := make([]string, o.Shards)
@@ -723,7 +851,9 @@ func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error
 	if err != nil {
 		return err
 	}
-	return batch.WriteMarker(st.dir, batch.Marker{"study": st.id, "settings": st.settings, "results": sum})
+	m := batch.Marker{"study": st.id, "settings": st.settings, "results": sum}
+	m.SetInputs(markerInputs(read))
+	return batch.WriteMarker(st.dir, m)
 }
 
 // writeBatchSummary loads each finished study's results.json (the same

@@ -189,8 +189,15 @@ func TestSlurmPendingStale(t *testing.T) {
 		if force {
 			wantPending, wantStale = []int{2, 3}, nil
 		}
-		if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(stale) != fmt.Sprint(wantStale) {
-			t.Errorf("force %v: pending %v, stale %v; want %v, %v", force, pending, stale, wantPending, wantStale)
+		var ids []string
+		for _, s := range stale {
+			ids = append(ids, s.st.id)
+			if !strings.Contains(s.why.why, "from other settings") {
+				t.Errorf("force %v: %s stale because %q; want the row named", force, s.st.id, s.why.why)
+			}
+		}
+		if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(ids) != fmt.Sprint(wantStale) {
+			t.Errorf("force %v: pending %v, stale %v; want %v, %v", force, pending, ids, wantPending, wantStale)
 		}
 		_, err = os.Stat(filepath.Join(out, "beta", ".areasweep-done"))
 		if force == (err == nil) {

@@ -153,8 +153,10 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 		return err
 	}
 	w := o.IO.Out
-	if len(stale) > 0 {
-		fmt.Fprintf(w, "not submitted: %s finished from other settings (the table row changed since); add --force to run them again, or remove their folders\n", strings.Join(stale, ", "))
+	var staleIDs []string
+	for _, s := range stale {
+		fmt.Fprintf(w, "not submitted: %s: %s was made %s; add --force to run it again, or %s\n", s.st.id, s.st.dir, s.why.why, s.why.remedy)
+		staleIDs = append(staleIDs, s.st.id)
 	}
 	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, plural(p.CPUs))
 	fmt.Fprintf(w, "merge job: %s\nmanifest:  %s\nlogs:      %s\n", files.Merge, files.Manifest, files.Logs)
@@ -183,7 +185,7 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	}
 	var notDone []string
 	for _, st := range studies {
-		if s, _ := st.state(); s == statePending {
+		if s, _, _ := st.state(); s == statePending {
 			notDone = append(notDone, st.id)
 		}
 	}
@@ -191,26 +193,33 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	case len(notDone) > 0:
 		also := ""
 		if len(stale) > 0 {
-			also = fmt.Sprintf(" (and add --force for %s, made from other settings)", strings.Join(stale, ", "))
+			also = fmt.Sprintf(" (and add --force for %s, made from other settings or inputs)", strings.Join(staleIDs, ", "))
 		}
 		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
 			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs, also)
 	case len(stale) > 0:
-		return fmt.Errorf("%d of %d studies were made from other settings and not run again (%s): add --force to run them again, or remove their folders",
-			len(stale), len(studies), strings.Join(stale, ", "))
+		return fmt.Errorf("%d of %d studies were made from other settings or inputs and not run again (%s, each named above): add --force to run them again",
+			len(stale), len(studies), strings.Join(staleIDs, ", "))
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
 	return nil
 }
 
+// staleStudy is a finished study made from other settings or inputs.
+type staleStudy struct {
+	st  *batchStudy
+	why staleness
+}
+
 // slurmPending lists the array indices (from 1) of the tasks to submit:
 // those of studies not finished, except shards already finished. A study
-// made from other settings (its marker records another settings checksum:
-// the row changed since) is submitted only with --force, its marker
-// removed first so that the array script does not skip it as finished;
-// without --force it is listed in stale instead. A shard made from other
-// settings runs again (its marker removed), as in a local batch.
-func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pending []int, stale []string, err error) {
+// made from other settings or inputs (its marker records another settings
+// checksum, the row changed since, or an input file that was replaced or
+// removed since) is submitted only with --force, its marker removed first
+// so that the array script does not skip it as finished; without --force
+// it is listed in stale instead, in table order. A shard made from other
+// settings or inputs runs again (its marker removed), as in a local batch.
+func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pending []int, stale []staleStudy, err error) {
 	byID := map[string]*batchStudy{}
 	for _, st := range studies {
 		byID[st.id] = st
@@ -218,18 +227,18 @@ func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pendin
 	isStale := map[string]bool{}
 	unmark := func(dir string) error {
 		if err := os.Remove(batch.MarkerPath(dir)); err != nil && !errors.Is(err, os.ErrNotExist) {
-			return fmt.Errorf("--force: cannot remove the completion marker of %s made from other settings: %w", dir, err)
+			return fmt.Errorf("--force: cannot remove the completion marker of %s made from other settings or inputs: %w", dir, err)
 		}
 		return nil
 	}
 	for i, t := range p.Tasks {
 		st := byID[t.Study]
-		switch s, _ := st.state(); {
+		switch s, why, _ := st.state(); {
 		case s == stateDone:
 			continue // a study already merged needs none of its shards again
 		case s == stateStale && !o.Force:
 			if !isStale[st.id] {
-				stale = append(stale, st.id)
+				stale = append(stale, staleStudy{st, why})
 			}
 			isStale[st.id] = true
 			continue
@@ -241,7 +250,7 @@ func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pendin
 		if t.Shards > 1 {
 			// A shard's folder is the batch's own: one made from other
 			// settings runs again, as in a local batch.
-			switch ss, _ := shardState(o.Out, st, t.Shard); ss {
+			switch ss, _, _ := shardState(o.Out, st, t.Shard); ss {
 			case stateDone:
 				continue
 			case stateStale:

@@ -139,3 +139,53 @@ func dumpLogs(dir string) string {
 	}
 	return b.String()
 }
+
+// TestBatchOnClusterInputReplaced: on the cluster, a finished study whose
+// occurrence file was replaced is not submitted again: named with the
+// file, no array job, exit 1 with --wait, and the merge job's summary
+// lists it as failed; with --force its task alone is submitted and it
+// finishes with other results.
+func TestBatchOnClusterInputReplaced(t *testing.T) {
+	env := slurmtest.Start(t, "../../scripts/slurm-local.sh")
+	dir, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "cluster-out")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("local batch: exit %d: %s", code, se)
+	}
+	results := filepath.Join(out, "a", "results.json")
+	first, _ := os.ReadFile(results)
+	occ := filepath.Join(dir, "occ.csv")
+	b, _ := os.ReadFile(occ)
+	if err := os.WriteFile(occ, bytes.Replace(b, []byte("10.6,47.6,test\n"), nil, 1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, occ)
+	logs := filepath.Join(out, batchMarker, "slurm", "logs")
+	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait")
+	if code != 1 || strings.Contains(so, "submitted array job") || !strings.Contains(so, "not submitted: a: ") ||
+		!strings.Contains(so, "the occurrences file "+occ+" holds other content") || !strings.Contains(se, "add --force") {
+		t.Fatalf("input replaced: exit %d, want 1, no array job, a named with %s\nstdout %s\nstderr %s\n%s", code, occ, so, se, dumpLogs(logs))
+	}
+	rows := readSummary(t, out)
+	if len(rows) != 2 || rows[0]["status"] != "failed" || !strings.Contains(rows[0]["error"], occ) || rows[1]["status"] != "ok" {
+		t.Errorf("the merge job's summary rows %v; want a failed naming %s, b ok", rows, occ)
+	}
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait", "--force")
+	if code != 0 || !strings.Contains(so, "(tasks 1)") {
+		t.Fatalf("--force: exit %d, want 0 with a's task alone\nstdout %s\nstderr %s\n%s", code, so, se, dumpLogs(logs))
+	}
+	if got, _ := os.ReadFile(results); len(got) == 0 || bytes.Equal(got, first) {
+		t.Errorf("--force: a's results.json is missing or the old one\n%s", dumpLogs(logs))
+	}
+	// The array script kept the batch's input lines beside its job line,
+	// so the next run finds the study finished.
+	m, err := batch.ReadMarker(filepath.Join(out, "a"))
+	files, ferr := m.Inputs()
+	if err != nil || ferr != nil || len(files) == 0 || m["job"] == "" {
+		t.Errorf("a's marker after the task: %v (%v, %v); want input lines and the task's job line", m, err, ferr)
+	}
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm")
+	if code != 0 || !strings.Contains(so, "2 tasks, 0 not finished") || strings.Contains(so, "not submitted") {
+		t.Errorf("after --force: exit %d\nstdout %s\nstderr %s", code, so, se)
+	}
+}

@@ -23,5 +23,11 @@
 // done for both. WriteMarker writes it last and atomically (temporary
 // file, then rename) only after the study succeeded; its lines are
 // "key<TAB>value", among them the SHA-256 of the study's settings, so that
-// a re-run can tell a study whose table row changed since.
+// a re-run can tell a study whose table row changed since, and each input
+// file's size, modification time and SHA-256 (Marker.SetInputs), so that
+// it can tell a study whose input file was replaced under the same path:
+// Checker.Check hashes only the files whose size or time changed, so a
+// file touched without a change of content still counts as unchanged. A
+// marker without input lines (written before they existed) compares the
+// settings alone.
 package batch

@@ -17,8 +17,9 @@ import (
 )
 
 // Marker is the content of a completion marker: "key<TAB>value" lines.
-// The keys WriteMarker writes are "study", "settings" (SettingsHash of the
-// study's settings) and "results" (the SHA-256 of its results.json).
+// The keys the batch command writes are "study", "settings" (SettingsHash
+// of the study's settings), "results" (the SHA-256 of its results.json)
+// and "input.NNNN", one per input file read (SetInputs, Inputs).
 // The SLURM array script writes "study", "shard", "finished" and "job".
 type Marker map[string]string
 

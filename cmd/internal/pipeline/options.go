@@ -61,6 +61,27 @@ type IO struct {
 	// Log, when set, receives the run log as it is written (the command
 	// reads it for a crash report); the same text goes to run.log.
 	Log *Log
+	// Inputs, when set, is called once the input checksums are taken
+	// (results.json's inputs), with every file hashed: each input and its
+	// sidecar files, in results.json's order. A batch records them in its
+	// completion marker to tell, on a re-run, whether an input changed.
+	Inputs func([]InputFile)
+}
+
+// InputFile is one file a run hashed, with its size and modification
+// time as found when its hashing started (a file changed while it is
+// hashed is then seen as modified after it).
+type InputFile struct {
+	// Role is that of the input the file belongs to, as results.json
+	// names it ("model:NAME", "occurrences", "region", ...); a sidecar
+	// file has its input's role.
+	Role string
+	// Path is the file as it was opened.
+	Path string
+	// Size in bytes, ModTime in nanoseconds since 1970 (Unix time).
+	Size, ModTime int64
+	// SHA256 is the hex SHA-256 of its content.
+	SHA256 string
 }
 
 // Log is the text of a run log, safe to read while the run writes it.

@@ -463,6 +463,7 @@ func (s *Study) checksums() error {
 		ins = append(ins, input{"extra:" + name, path, inputs.VectorSidecars})
 	}
 	recs := make([]report.Input, len(ins))
+	files := make([][]InputFile, len(ins))
 	errs := make([]error, len(ins))
 	sem := make(chan struct{}, max(1, runtime.GOMAXPROCS(0)))
 	var wg sync.WaitGroup
@@ -472,17 +473,22 @@ func (s *Study) checksums() error {
 		go func() {
 			defer func() { <-sem; wg.Done() }()
 			r := report.Input{Role: in.role, Path: s.recordedPath(in.path)}
-			if r.SHA256, errs[i] = fileSHA256(in.path); errs[i] != nil {
+			f, err := fileSHA256(in.path)
+			if errs[i] = err; err != nil {
 				return
 			}
+			r.SHA256, f.Role = f.SHA256, in.role
+			files[i] = append(files[i], f)
 			if in.kind >= 0 {
 				for _, p := range sidecarFiles(in.path, in.kind) {
-					sum, err := fileSHA256(p)
+					sc, err := fileSHA256(p)
 					if err != nil {
 						errs[i] = fmt.Errorf("sidecar of %s: %w", in.path, err)
 						return
 					}
-					r.Sidecars = append(r.Sidecars, report.Sidecar{Path: s.recordedPath(p), SHA256: sum})
+					sc.Role = in.role
+					files[i] = append(files[i], sc)
+					r.Sidecars = append(r.Sidecars, report.Sidecar{Path: s.recordedPath(p), SHA256: sc.SHA256})
 				}
 			}
 			recs[i] = r
@@ -495,6 +501,13 @@ func (s *Study) checksums() error {
 		}
 	}
 	s.res.Inputs = append(s.res.Inputs, recs...)
+	if s.io.Inputs != nil {
+		var all []InputFile
+		for _, f := range files {
+			all = append(all, f...)
+		}
+		s.io.Inputs(all)
+	}
 	return nil
 }
 
@@ -544,19 +557,30 @@ func sidecarsDigest(in report.Input) string {
 	return hex.EncodeToString(h.Sum(nil))
 }
 
-func fileSHA256(path string) (string, error) {
+// fileSHA256 hashes the file at path. Its size and modification time
+// are those of the opened file before it is read, so that a file changed
+// while it is hashed has a later time than the one recorded with its
+// checksum (IO.Inputs).
+func fileSHA256(path string) (InputFile, error) {
+	in := InputFile{Path: path}
 	f, err := os.Open(path)
 	if err != nil {
-		return "", err
+		return in, err
 	}
 	defer f.Close()
+	st, err := f.Stat()
+	if err != nil {
+		return in, err
+	}
+	in.Size, in.ModTime = st.Size(), st.ModTime().UnixNano()
 	h := sha256.New()
 	// 1 MiB reads (io.Copy would use 32 KiB through the file's WriteTo):
 	// about a tenth less CPU on a 3.2 GB model read from the page cache.
 	if _, err := io.CopyBuffer(h, struct{ io.Reader }{f}, make([]byte, 1<<20)); err != nil {
-		return "", fmt.Errorf("read %s: %w", path, err)
+		return in, fmt.Errorf("read %s: %w", path, err)
 	}
-	return hex.EncodeToString(h.Sum(nil)), nil
+	in.SHA256 = hex.EncodeToString(h.Sum(nil))
+	return in, nil
 }
 
 // scoredPoints returns lon/lat and cells of the scored points of role.

@@ -1,0 +1,365 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"areasweep/cmd/internal/batch"
+)
+
+// inputsStudy copies the shared small study's model, region and
+// occurrences into a folder of the test's own (the test changes them),
+// with a second copy of the occurrences for a study the changes must not
+// touch and an .aux.xml beside the model (a sidecar file the run records
+// with it), and writes a table of two studies on them: "a" (occ.csv) and
+// "b" (occ_b.csv). It returns the folder and the table's path.
+func inputsStudy(t *testing.T) (dir, table string) {
+	t.Helper()
+	s := sharedStudy(t)
+	dir = t.TempDir()
+	for src, name := range map[string]string{s.model: "model.tif", s.region: "region.geojson", s.occ: "occ.csv"} {
+		b, err := os.ReadFile(src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if name == "occ.csv" {
+			if err := os.WriteFile(filepath.Join(dir, "occ_b.csv"), b, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	aux := `<PAMDataset><Metadata><MDI key="note">made by hand</MDI></Metadata></PAMDataset>` + "\n"
+	if err := os.WriteFile(filepath.Join(dir, "model.tif.aux.xml"), []byte(aux), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	table = filepath.Join(dir, "studies.csv")
+	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n# iterations: 30\n" +
+		"id,model,occurrences,region\n" +
+		"a,m=model.tif,occ.csv,region.geojson\n" +
+		"b,m=model.tif,occ_b.csv,region.geojson\n"
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return dir, table
+}
+
+// laterTime sets path's modification time an hour ahead, so that a
+// rewrite within the file system's time resolution is still seen.
+func laterTime(t *testing.T, path string) {
+	t.Helper()
+	later := time.Now().Add(time.Hour)
+	if err := os.Chtimes(path, later, later); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestBatchInputReplaced: a finished study one of whose input files is
+// replaced under the same path. Touched only: still finished, skipped,
+// and its marker takes the new time. Other content: named with the file,
+// not run again, listed as failed in the summary, exit 1 as for a
+// changed row; with --force: run again, other results. A sidecar file
+// removed: named as removed; restored with the same bytes: finished
+// again. A sidecar added: named as added. A named input removed: the table check refuses it (exit 2). A
+// marker without input lines (an older areasweep's): finished, as before.
+func TestBatchInputReplaced(t *testing.T) {
+	dir, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "runs")
+	occ := filepath.Join(dir, "occ.csv")
+	batchOK := func(what string, args ...string) string {
+		t.Helper()
+		_, se, code := runBin(t, append([]string{"batch", table, "--out", out}, args...)...)
+		if code != 0 {
+			t.Fatalf("%s: exit %d, want 0: %s", what, code, se)
+		}
+		return se
+	}
+	batchOK("first run")
+	m, err := batch.ReadMarker(filepath.Join(out, "a"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err := m.Inputs()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var roles []string
+	for _, f := range files {
+		roles = append(roles, f.Role+" "+filepath.Base(f.Path))
+	}
+	if want := []string{"model:m model.tif", "model:m model.tif.aux.xml", "occurrences occ.csv", "region region.geojson"}; !slices.Equal(roles, want) {
+		t.Fatalf("marker records %v, want %v", roles, want)
+	}
+	// The checksums are the run's own, those results.json records.
+	var want []string
+	for _, in := range loadResults(t, filepath.Join(out, "a")).Inputs {
+		want = append(want, in.Path+" "+in.SHA256)
+		for _, sc := range in.Sidecars {
+			want = append(want, sc.Path+" "+sc.SHA256)
+		}
+	}
+	var got []string
+	for _, f := range files {
+		got = append(got, f.Path+" "+f.SHA256)
+	}
+	if !slices.Equal(got, want) {
+		t.Errorf("marker records %v, results.json's inputs %v", got, want)
+	}
+	results := filepath.Join(out, "a", "results.json")
+	first, err := os.ReadFile(results)
+	if err != nil {
+		t.Fatal(err)
+	}
+
+	// Touched: the same bytes, a new time.
+	laterTime(t, occ)
+	se := batchOK("after touch")
+	if !strings.Contains(se, "a: already finished, skipped") {
+		t.Errorf("after touch: a not skipped as finished: %s", se)
+	}
+	st, _ := os.Stat(occ)
+	m, _ = batch.ReadMarker(filepath.Join(out, "a"))
+	files, _ = m.Inputs()
+	if files[2].ModTime != st.ModTime().UnixNano() {
+		t.Errorf("after touch: the marker records time %d for occ.csv, the file has %d (the next rerun would hash it again)", files[2].ModTime, st.ModTime().UnixNano())
+	}
+
+	// Other content: the last test point removed.
+	b, _ := os.ReadFile(occ)
+	lines := strings.SplitAfter(strings.TrimSuffix(string(b), "\n"), "\n")
+	if err := os.WriteFile(occ, []byte(strings.Join(lines[:len(lines)-1], "")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, occ)
+	_, se, code := runBin(t, "batch", table, "--out", out)
+	if code != 1 {
+		t.Fatalf("occ.csv replaced: exit %d, want 1 (as for a changed row): %s", code, se)
+	}
+	for _, want := range []string{"b: already finished, skipped", "1 of 2 studies failed: a",
+		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs them again (they were made from other settings or inputs)"} {
+		if !strings.Contains(se, want) {
+			t.Errorf("occ.csv replaced: stderr lacks %q:\n%s", want, se)
+		}
+	}
+	if got, _ := os.ReadFile(results); !bytes.Equal(got, first) {
+		t.Error("occ.csv replaced: a's results.json changed without --force")
+	}
+	rows := readSummary(t, out)
+	if len(rows) != 2 || rows[0]["study"] != "a" || rows[0]["status"] != "failed" || !strings.Contains(rows[0]["error"], occ) || rows[1]["status"] != "ok" {
+		t.Errorf("occ.csv replaced: summary rows %v; want a failed naming %s, b ok", rows, occ)
+	}
+
+	// --force: a runs again from the new file.
+	se = batchOK("--force", "--force")
+	if !strings.Contains(se, "a: started") || !strings.Contains(se, "b: already finished, skipped") {
+		t.Errorf("--force: stderr %s", se)
+	}
+	second, _ := os.ReadFile(results)
+	if bytes.Equal(second, first) {
+		t.Error("--force: a's results.json is the old one")
+	}
+	if se := batchOK("after --force"); !strings.Contains(se, "a: already finished, skipped") {
+		t.Errorf("after --force: a not finished: %s", se)
+	}
+
+	// A sidecar removed, then put back with the same bytes.
+	aux := filepath.Join(dir, "model.tif.aux.xml")
+	auxBytes, _ := os.ReadFile(aux)
+	os.Remove(aux)
+	_, se, code = runBin(t, "batch", table, "--out", out)
+	if code != 1 || !strings.Contains(se, "the model m file "+aux+" was removed") || !strings.Contains(se, "2 of 2 studies failed") {
+		t.Errorf("sidecar removed: exit %d, want 1 naming %s as removed for both studies: %s", code, aux, se)
+	}
+	if err := os.WriteFile(aux, auxBytes, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, aux)
+	batchOK("sidecar restored")
+
+	// A sidecar added: a world file beside the model.
+	tfw := filepath.Join(dir, "model.tfw")
+	if err := os.WriteFile(tfw, []byte("0.25\n0\n0\n-0.25\n10.125\n47.875\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code = runBin(t, "batch", table, "--out", out)
+	if code != 1 || !strings.Contains(se, "the model m file "+tfw+" was added") || !strings.Contains(se, "or remove the file again") {
+		t.Errorf("sidecar added: exit %d, want 1 naming %s as added: %s", code, tfw, se)
+	}
+	os.Remove(tfw)
+	batchOK("added sidecar removed")
+
+	// A named input removed: refused with the table's problems.
+	os.Rename(occ, occ+".away")
+	_, se, code = runBin(t, "batch", table, "--out", out)
+	if code != 2 || !strings.Contains(se, occ+" does not exist") {
+		t.Errorf("occ.csv removed: exit %d, want 2 naming it: %s", code, se)
+	}
+	os.Rename(occ+".away", occ)
+
+	// A marker without input lines: the settings alone are compared.
+	m, _ = batch.ReadMarker(filepath.Join(out, "a"))
+	m.SetInputs(nil)
+	if err := batch.WriteMarker(filepath.Join(out, "a"), m); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(occ, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, occ)
+	if se := batchOK("older marker"); !strings.Contains(se, "a: already finished, skipped") {
+		t.Errorf("older marker: a not skipped: %s", se)
+	}
+}
+
+// TestBatchInputReplacedShards: with --shards, the shards' markers record
+// the inputs too: after an input is replaced, --force runs the shards
+// again (not only the merge, which would refuse shards made from the old
+// file) and the merged results are those of a plain run on the new file.
+func TestBatchInputReplacedShards(t *testing.T) {
+	dir, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "runs")
+	occ := filepath.Join(dir, "occ.csv")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--only", "a", "--shards", "2"); code != 0 {
+		t.Fatalf("first run: exit %d: %s", code, se)
+	}
+	b, _ := os.ReadFile(occ)
+	if err := os.WriteFile(occ, bytes.Replace(b, []byte("10.6,47.6,test\n"), nil, 1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, occ)
+	_, se, code := runBin(t, "batch", table, "--out", out, "--only", "a", "--shards", "2", "--force")
+	if code != 0 {
+		t.Fatalf("--force: exit %d: %s", code, se)
+	}
+	for k := 1; k <= 2; k++ {
+		if want := fmt.Sprintf("a: shard %d/2 started", k); !strings.Contains(se, want) {
+			t.Errorf("--force: stderr lacks %q: %s", want, se)
+		}
+	}
+	plain := filepath.Join(t.TempDir(), "plain")
+	args := []string{"run", "--model", "m=" + filepath.Join(dir, "model.tif"), "--occurrences", occ, "--region", filepath.Join(dir, "region.geojson"),
+		"--region-buffers", "60", "--point-buffers", "40", "--hull-buffers", "0", "--e", "0.05", "--iterations", "30", "--quiet", "--out", plain}
+	if _, se, code := runBin(t, args...); code != 0 {
+		t.Fatalf("plain run: exit %d: %s", code, se)
+	}
+	want, _ := os.ReadFile(filepath.Join(plain, "results.json"))
+	got, _ := os.ReadFile(filepath.Join(out, "a", "results.json"))
+	if len(want) == 0 || !bytes.Equal(got, want) {
+		t.Error("after --force with shards: a's results.json differs from a plain run on the new occ.csv")
+	}
+}
+
+// TestSlurmPendingInputReplaced: which tasks --slurm submits once an
+// input file of a finished study was replaced: without --force, not that
+// study's (named with the file), with --force its task, its marker
+// removed so that the array script does not skip it. A finished study
+// whose files did not change is not submitted either way; with --shards,
+// the shards of a study whose input changed are submitted again.
+func TestSlurmPendingInputReplaced(t *testing.T) {
+	dir, table := inputsStudy(t)
+	for _, shards := range []int{1, 2} {
+		out := filepath.Join(t.TempDir(), "runs")
+		if _, se, code := runBin(t, "batch", table, "--out", out, "--shards", fmt.Sprint(shards)); code != 0 {
+			t.Fatalf("shards %d: batch: exit %d: %s", shards, code, se)
+		}
+		occ := filepath.Join(dir, "occ.csv")
+		b, _ := os.ReadFile(occ)
+		if err := os.WriteFile(occ, append(b, "13.6,43.1,test\n"...), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		for _, force := range []bool{false, true} {
+			o := &BatchOptions{Table: table, Out: out, Shards: shards, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}}
+			studies, err := resolveBatch(o)
+			if err != nil {
+				t.Fatal(err)
+			}
+			p, err := slurmPlan(o, studies)
+			if err != nil {
+				t.Fatal(err)
+			}
+			pending, stale, err := slurmPending(o, p, studies)
+			if err != nil {
+				t.Fatal(err)
+			}
+			// Tasks: a's (occ.csv replaced), then b's (unchanged).
+			wantPending, wantStale := []int{1}, "[a]"
+			if shards == 2 {
+				wantPending = []int{1, 2}
+			}
+			if !force {
+				wantPending = nil
+			}
+			var ids []string
+			for _, s := range stale {
+				ids = append(ids, s.st.id)
+				if !strings.Contains(s.why.why, "the occurrences file "+occ+" holds other content") {
+					t.Errorf("shards %d: a stale because %q; want occ.csv named", shards, s.why.why)
+				}
+			}
+			if force {
+				wantStale = "[]"
+			}
+			if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(ids) != wantStale {
+				t.Errorf("shards %d, force %v: pending %v, stale %v; want %v, %s", shards, force, pending, ids, wantPending, wantStale)
+			}
+			_, err = os.Stat(filepath.Join(out, "a", ".areasweep-done"))
+			if force == (err == nil) {
+				t.Errorf("shards %d, force %v: a's marker: %v", shards, force, err)
+			}
+		}
+		if _, err := os.Stat(filepath.Join(out, "b", ".areasweep-done")); err != nil {
+			t.Errorf("shards %d: b's marker: %v", shards, err)
+		}
+		if err := os.WriteFile(occ, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+// TestAddedSidecars: the files found beside a recorded input that the
+// marker does not record, by the input's kind; the occurrence table has
+// none, and a recorded sidecar is not new.
+func TestAddedSidecars(t *testing.T) {
+	dir := t.TempDir()
+	for _, n := range []string{"r.shp", "r.shx", "r.dbf", "r.prj", "m.tif", "m.tif.aux.xml", "m.tfw", "occ.csv", "occ.prj"} {
+		if err := os.WriteFile(filepath.Join(dir, n), []byte("x"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f := func(role, name string) batch.InputFile {
+		return batch.InputFile{Role: role, Path: filepath.Join(dir, name)}
+	}
+	for _, c := range []struct {
+		name  string
+		files []batch.InputFile
+		want  []string
+	}{
+		{"all recorded", []batch.InputFile{f("region", "r.shp"), f("region", "r.dbf"), f("region", "r.prj"), f("region", "r.shx")}, nil},
+		{"a shapefile's .prj added", []batch.InputFile{f("region", "r.shp"), f("region", "r.dbf"), f("region", "r.shx")}, []string{"region r.prj"}},
+		{"a raster's world file and PAM file added", []batch.InputFile{f("model:m", "m.tif")}, []string{"model:m m.tfw", "model:m m.tif.aux.xml"}},
+		{"a null is a raster too", []batch.InputFile{f("null:n", "m.tif"), f("null:n", "m.tfw")}, []string{"null:n m.tif.aux.xml"}},
+		{"the occurrence table has none", []batch.InputFile{f("occurrences", "occ.csv")}, nil},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var got []string
+			for _, a := range addedSidecars(c.files) {
+				if !a.Added {
+					t.Errorf("%v not marked as added", a)
+				}
+				got = append(got, a.File.Role+" "+filepath.Base(a.File.Path))
+			}
+			slices.Sort(got)
+			if !slices.Equal(got, c.want) {
+				t.Errorf("added %v, want %v", got, c.want)
+			}
+		})
+	}
+}
