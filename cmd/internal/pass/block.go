@@ -651,8 +651,14 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 				a.AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
 				continue
 			}
-			for _, k := range ws.members(s.sig) {
-				accs[k].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+			if ms := ws.members(s.sig); len(ms) == 1 {
+				accs[ms[0]].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+			} else {
+				ws.dst = ws.dst[:0]
+				for _, k := range ms {
+					ws.dst = append(ws.dst, accs[k])
+				}
+				metrics.AddRowTo(ws.dst, bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
 			}
 		}
 	}
