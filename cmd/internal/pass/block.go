@@ -595,7 +595,15 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		vword, vbits := -1, uint64(0)
 		// The statistics in locals: st is written back once per row.
 		mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
-		for _, s := range segs {
+		for j := 0; j < len(segs); {
+			// Segments that touch are located as one run when the row's
+			// cells have one positive weight: the statistics are then
+			// those of the same cells (the area grows with every run
+			// that has a cell, so no run is taken for the first).
+			s := segs[j]
+			for j++; rowW > 0 && j < len(segs) && segs[j].x0 == s.x1; j++ {
+				s.x1 = segs[j].x1
+			}
 			sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
 			n, lo, hi := layout.LocateRow(sv, sb)
 			if n == 0 {
