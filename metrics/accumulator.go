@@ -119,7 +119,32 @@ func (a *Accumulator) AddLocated(bin int, v float64, w int64) {
 // added one at a time (see gridExp).
 func (a *Accumulator) AddRow(bins []int32, vals []float64, weights []int64) {
 	vals, weights = vals[:len(bins)], weights[:len(bins)]
-	lo, hi := math.Inf(1), math.Inf(-1)
+	lo, hi, ok := rowRange(bins, vals)
+	if ok {
+		a.addRow(bins, vals, weights, lo, hi)
+	}
+}
+
+// AddRowTo adds one row's cells to each accumulator of dst as AddRow
+// does, finding the run's range once for all of them. The accumulators
+// must be distinct.
+func AddRowTo(dst []*Accumulator, bins []int32, vals []float64, weights []int64) {
+	vals, weights = vals[:len(bins)], weights[:len(bins)]
+	lo, hi, ok := rowRange(bins, vals)
+	if !ok {
+		return
+	}
+	for _, a := range dst {
+		a.addRow(bins, vals, weights, lo, hi)
+	}
+}
+
+// rowRange returns the smallest and largest value of the cells i with
+// bins[i] >= 0 (+0 for a zero of either sign), and false when there is
+// none.
+func rowRange(bins []int32, vals []float64) (lo, hi float64, ok bool) {
+	vals = vals[:len(bins)]
+	lo, hi = math.Inf(1), math.Inf(-1)
 	for i, bin := range bins {
 		if bin >= 0 {
 			v := vals[i]
@@ -132,7 +157,7 @@ func (a *Accumulator) AddRow(bins []int32, vals []float64, weights []int64) {
 		}
 	}
 	if lo > hi {
-		return // no cell
+		return 0, 0, false // no cell
 	}
 	if lo == 0 {
 		lo = 0 // -0 and +0 are one value: Min and Max report +0
@@ -140,6 +165,12 @@ func (a *Accumulator) AddRow(bins []int32, vals []float64, weights []int64) {
 	if hi == 0 {
 		hi = 0
 	}
+	return lo, hi, true
+}
+
+// addRow is AddRow given the run's range [lo, hi] (rowRange).
+func (a *Accumulator) addRow(bins []int32, vals []float64, weights []int64, lo, hi float64) {
+	vals, weights = vals[:len(bins)], weights[:len(bins)]
 	// gridX is monotone in v, so the window holds [lo, hi] iff it holds
 	// both ends.
 	if !(gridX(lo, a.hinv) >= a.hlo && gridX(hi, a.hinv) < a.hhi) {

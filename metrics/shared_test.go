@@ -7,9 +7,9 @@ import (
 	"testing"
 )
 
-// TestAddRowMatchesAdd: AddRow (one widening per run) and Shared (cells
-// added once, drained into several accumulators whose grids differ, some
-// empty) leave every accumulator byte for byte as Add does cell by cell,
+// TestAddRowMatchesAdd: AddRow (one widening per run), AddRowTo (one
+// range per run for several accumulators) and Shared (cells added once,
+// drained into several accumulators whose grids differ, some empty) leave every accumulator byte for byte as Add does cell by cell,
 // over rows whose ranges grow, shrink and jump (negative values, values
 // near zero, -0, both signs of tiny values, a range far from the others),
 // with floored and unfloored layouts.
@@ -47,8 +47,9 @@ func TestAddRowMatchesAdd(t *testing.T) {
 		ref := make([]*Accumulator, members)  // Add, cell by cell
 		rows := make([]*Accumulator, members) // AddRow
 		shared := make([]*Accumulator, members)
+		to := make([]*Accumulator, members) // AddRowTo
 		for k := range ref {
-			ref[k], rows[k], shared[k] = l.NewAccumulator(), l.NewAccumulator(), l.NewAccumulator()
+			ref[k], rows[k], shared[k], to[k] = l.NewAccumulator(), l.NewAccumulator(), l.NewAccumulator(), l.NewAccumulator()
 		}
 		sh := l.NewShared()
 		vals, weights, bins := make([]float64, row), make([]int64, row), make([]int32, row)
@@ -75,7 +76,7 @@ func TestAddRowMatchesAdd(t *testing.T) {
 			}
 			// Each member takes some of the rows; member k then gets the
 			// same cells through Add, AddRow and Shared.
-			var dst []*Accumulator
+			var dst, dstTo []*Accumulator
 			for k := 0; k < members; k++ {
 				if (it+k)%(k+1) != 0 {
 					continue
@@ -87,7 +88,9 @@ func TestAddRowMatchesAdd(t *testing.T) {
 				}
 				rows[k].AddRow(bins, vals, weights)
 				dst = append(dst, shared[k])
+				dstTo = append(dstTo, to[k])
 			}
+			AddRowTo(dstTo, bins, vals, weights)
 			sh.Begin(dst)
 			sh.AddRow(bins[:row/2], vals, weights)
 			sh.AddRow(bins[row/2:], vals[row/2:], weights[row/2:])
@@ -101,6 +104,9 @@ func TestAddRowMatchesAdd(t *testing.T) {
 				}
 				if got := EncodeAccumulator(shared[k]); !bytes.Equal(got, want) {
 					t.Fatalf("floored %v, row %d, member %d: Shared differs from Add", floored, it, k)
+				}
+				if got := EncodeAccumulator(to[k]); !bytes.Equal(got, want) {
+					t.Fatalf("floored %v, row %d, member %d: AddRowTo differs from Add", floored, it, k)
 				}
 			}
 		}

@@ -176,6 +176,7 @@ type workerState struct {
 	// sorted[j1].x. Valid for the band being planned only.
 	sorted []edge
 	keys   []uint64
+	tmp    []int32 // countingOrder's scratch
 	perm   []int32
 	tie    []bool
 	spans  []segment
@@ -307,7 +308,9 @@ func (ws *workerState) overlay(bd *band, ts []target) {
 	// The edges' order: ends before starts at the same column, so that a
 	// member never appears twice in the active set.
 	ws.perm = ws.perm[:0]
-	if n < 1<<28 {
+	if ws.countingOrder() {
+		// Many edges on a narrow row: ordered by counting.
+	} else if n < 1<<28 {
 		// Sorted as integers x<<40 | (k+2048)<<28 | i, for columns below
 		// 2^24 (k+2048 is in [1024, 3072) since -MaxMembers <= k <
 		// MaxMembers): by column, then member (ends first); i, the edge's
@@ -367,6 +370,72 @@ func (ws *workerState) overlay(bd *band, ts []target) {
 		}
 	}
 }
+
+// countingOrder puts in ws.perm the order of ws.edges by column, then
+// member (ends first: k ascending), as the sort of overlay does, by a
+// radix sort of the columns (least significant byte first, one counting
+// pass per byte of the largest column: stable, so each column's edges
+// stay in generation order) when the row has enough edges for that to
+// beat a comparison sort, then sorts each column's edges by member among
+// themselves (a column rarely holds more than two, and no two edges share
+// both column and member: a member's runs are disjoint and do not touch).
+// It reports whether it did.
+func (ws *workerState) countingOrder() bool {
+	n := len(ws.edges)
+	if n < minCountingEdges {
+		return false
+	}
+	hi := int32(0)
+	for _, e := range ws.edges {
+		if e.x < 0 {
+			return false
+		}
+		hi = max(hi, e.x)
+	}
+	ws.perm = slices.Grow(ws.perm[:0], n)[:n]
+	ws.tmp = slices.Grow(ws.tmp[:0], n)[:n]
+	src, dst := ws.tmp, ws.perm
+	for i := range src {
+		src[i] = int32(i)
+	}
+	passes := 0
+	for shift := uint(0); shift == 0 || hi>>shift > 0; shift += 8 {
+		var cnt [257]int32
+		for _, i := range src {
+			cnt[(ws.edges[i].x>>shift)&0xff+1]++
+		}
+		for b := 1; b < len(cnt); b++ {
+			cnt[b] += cnt[b-1]
+		}
+		for _, i := range src {
+			b := (ws.edges[i].x >> shift) & 0xff
+			dst[cnt[b]] = i
+			cnt[b]++
+		}
+		src, dst = dst, src
+		passes++
+	}
+	perm := src
+	for j := 1; j < n; j++ {
+		// Insertion sort by member within each column.
+		for m := j; m > 0; m-- {
+			a, b := ws.edges[perm[m-1]], ws.edges[perm[m]]
+			if a.x != b.x || a.k < b.k {
+				break
+			}
+			perm[m-1], perm[m] = perm[m], perm[m-1]
+		}
+	}
+	if passes%2 == 0 {
+		ws.perm, ws.tmp = ws.tmp, ws.perm
+	}
+	return true
+}
+
+// minCountingEdges is the fewest edges of a row that countingOrder
+// orders (each of its passes costs about 512 steps plus two per edge,
+// a comparison sort log2(n) comparisons per edge).
+const minCountingEdges = 64
 
 // memberHash is member k's term of a signature's hash: the XOR of its
 // members' terms (kept up to date as members enter and leave the active
@@ -526,7 +595,15 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		vword, vbits := -1, uint64(0)
 		// The statistics in locals: st is written back once per row.
 		mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
-		for _, s := range segs {
+		for j := 0; j < len(segs); {
+			// Segments that touch are located as one run when the row's
+			// cells have one positive weight: the statistics are then
+			// those of the same cells (the area grows with every run
+			// that has a cell, so no run is taken for the first).
+			s := segs[j]
+			for j++; rowW > 0 && j < len(segs) && segs[j].x0 == s.x1; j++ {
+				s.x1 = segs[j].x1
+			}
 			sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
 			n, lo, hi := layout.LocateRow(sv, sb)
 			if n == 0 {
@@ -582,8 +659,14 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 				a.AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
 				continue
 			}
-			for _, k := range ws.members(s.sig) {
-				accs[k].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+			if ms := ws.members(s.sig); len(ms) == 1 {
+				accs[ms[0]].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+			} else {
+				ws.dst = ws.dst[:0]
+				for _, k := range ms {
+					ws.dst = append(ws.dst, accs[k])
+				}
+				metrics.AddRowTo(ws.dst, bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
 			}
 		}
 	}

@@ -5,9 +5,14 @@ package pass
 import (
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
 	"testing"
 
 	"areasweep/extent"
+	"areasweep/extent/benchfamily"
 	"areasweep/extent/vocab"
 )
 
@@ -120,4 +125,78 @@ func BenchmarkPlan(b *testing.B) {
 			b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
 		})
 	}
+}
+
+// BenchmarkPlanStudy is BenchmarkPlan on the families of 13 and 60
+// extents of `cmd/sweepbench` (extent/benchfamily: base, hull and whole
+// raster, region buffers every 20 km in and out, point buffers every
+// 25 km around the training points) built on the study named by
+// AREASWEEP_BENCH_STUDY (a folder holding model1.tif, occurrences.csv and
+// region.geojson, e.g. a sweepbench study; skipped when unset), with the
+// raster's 256 x 256 blocks, on one worker: CPU time per block.
+func BenchmarkPlanStudy(b *testing.B) {
+	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
+	if dir == "" {
+		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
+	}
+	extent.Configure()
+	g, err := extent.OpenGrid(filepath.Join(dir, "model1.tif"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	train := studyTrain(b, filepath.Join(dir, "occurrences.csv"))
+	w, h, side := g.Width, g.Height, 256
+	nx, ny := (w+side-1)/side, (h+side-1)/side
+	for _, n := range []int{13, 60} {
+		region, points := benchfamily.Buffers(n)
+		spec := extent.Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
+		fam, err := extent.Build(g, nil, spec, nil, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+		groups := fam.Groups()
+		b.Run(fmt.Sprintf("extents=%d", len(fam.Members)), func(b *testing.B) {
+			ws := newWorkerState(side, side)
+			var cpu int64
+			for b.Loop() {
+				t0 := cpuNow(b)
+				bs := newBands(fam, groups, w, nx, side, RowRange{0, h})
+				for i := range nx * ny {
+					x0, y0 := (i%nx)*side, (i/nx)*side
+					blk := block{x0: x0, y0: y0, w: min(side, w-x0), h: min(side, h-y0)}
+					bd := bs.get(i/nx, ws)
+					ws.planBlock(bd, blk)
+					bs.done(i/nx, bd)
+				}
+				cpu += cpuNow(b) - t0
+			}
+			b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
+		})
+	}
+}
+
+// studyTrain reads the training points of a sweepbench occurrence file
+// (longitude,latitude,role with a header).
+func studyTrain(b *testing.B, path string) []extent.LonLat {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var train []extent.LonLat
+	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
+		f := strings.Split(line, ",")
+		if len(f) < 3 {
+			b.Fatalf("%s: bad line %q", path, line)
+		}
+		lon, err1 := strconv.ParseFloat(f[0], 64)
+		lat, err2 := strconv.ParseFloat(f[1], 64)
+		if err1 != nil || err2 != nil {
+			b.Fatalf("%s: bad line %q", path, line)
+		}
+		if f[2] == "train" {
+			train = append(train, extent.LonLat{Lon: lon, Lat: lat})
+		}
+	}
+	return train
 }

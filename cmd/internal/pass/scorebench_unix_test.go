@@ -18,7 +18,9 @@ import (
 // values converted to float64, no-data decoded), on one worker, with the
 // layout of BenchmarkNullVsRaster (1000 values, 4096 histogram bins). It
 // reports the process CPU time (user + system) per cell. family=none has
-// no member, so it is the floor: reading and decoding the blocks.
+// no member, so it is the floor: reading and decoding the blocks;
+// chains13 and chains60 are BenchmarkPlan's families of a run's shape
+// (two nested chains, planFamily), where the cost per extent shows.
 func BenchmarkScoreMem(b *testing.B) {
 	w, h := 3600, 2400
 	g, err := extent.NewGrid(w, h, [6]float64{-20, 60.0 / float64(w), 0, 70, 0, -40.0 / float64(h)}, "EPSG:4326")
@@ -43,7 +45,8 @@ func BenchmarkScoreMem(b *testing.B) {
 	layout := mustLayout(b, 0, 1)
 	fams := benchFamilies(g)
 	fams["none"] = extent.NewFamilyFromRuns(g, []extent.Member{{ID: "0", Status: vocab.StatusOK}}, func(k, row int) []int32 { return nil })
-	for _, name := range []string{"none", "full8", "run8", "discs60"} {
+	fams["chains13"], fams["chains60"] = planFamily(g, 13), planFamily(g, 60)
+	for _, name := range []string{"none", "full8", "run8", "discs60", "chains13", "chains60"} {
 		fam := fams[name]
 		b.Run("family="+name, func(b *testing.B) {
 			b.ReportAllocs()
