@@ -553,7 +553,7 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
-			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(err.Error()))
+			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(fault.UserText(err)))
 		}
 	}
 	if len(ids) > maxFailuresShown {
@@ -601,7 +601,7 @@ func recordFailure(out, id string, k int, err error) {
 		return
 	}
 	if os.MkdirAll(filepath.Dir(p), 0o755) == nil {
-		outfile.Write(p, []byte(oneLine(err.Error())+"\n"), 0o666)
+		outfile.Write(p, []byte(oneLine(fault.UserText(err))+"\n"), 0o666)
 	}
 }
 
@@ -795,7 +795,7 @@ func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units
 		t0 := time.Now()
 		err := runUnit(ctx, o, st, u)
 		if err != nil {
-			p.line(st.id, strings.TrimSpace(what+" failed: ")+" "+oneLine(err.Error()))
+			p.line(st.id, strings.TrimSpace(what+" failed: ")+" "+oneLine(fault.UserText(err)))
 			return err
 		}
 		p.line(st.id, strings.TrimSpace(fmt.Sprintf("%s finished in %.1f s", what, time.Since(t0).Seconds())))

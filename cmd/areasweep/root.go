@@ -116,7 +116,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		// cobra's own refusal of a command it does not have.
 		err = fault.BadInput(fmt.Errorf("%w (see 'areasweep --help')", err))
 	}
-	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(err.Error(), "\n"))
+	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(fault.UserText(err), "\n"))
 	switch {
 	case fault.IsBadInput(err):
 		return exitBadInput

@@ -8,7 +8,10 @@
 // BadInput or Internal; the command reads the class with errors.As.
 package fault
 
-import "errors"
+import (
+	"errors"
+	"regexp"
+)
 
 // InputError marks an error caused by the user's input or flags.
 type InputError struct{ Err error }
@@ -57,4 +60,29 @@ func IsBadInput(err error) bool {
 func IsInternal(err error) bool {
 	var ne InternalError
 	return errors.As(err, &ne)
+}
+
+// packagePrefix is the "name: " with which areasweep's own packages begin
+// their errors (Go's convention for a library), at the start of a message
+// or after another part's ": ".
+var packagePrefix = regexp.MustCompile(`(?m)(^|: |^\s+)(?:batch|extent|geodesy|inputs|metrics|nullmodel|pass|place|report|scenario|shardfile|slurm): `)
+
+// UserText returns an error message as a user reads it: without the names
+// of areasweep's packages that the layers below the command put in front
+// of their parts ("region: extent: F feature 1 is ..." becomes "region: F
+// feature 1 is ..."). What names a file, a flag, a model or a study is
+// kept; a bug's message (Internal) is shown as it is, with its package
+// names, for the report.
+func UserText(err error) string {
+	msg := err.Error()
+	if IsInternal(err) {
+		return msg
+	}
+	for {
+		out := packagePrefix.ReplaceAllString(msg, "$1")
+		if out == msg {
+			return out
+		}
+		msg = out
+	}
 }
