@@ -101,6 +101,9 @@ type Evaluator struct {
 	// own is the memo of ownResamples: the scores on each resample of
 	// one Draws with all of the evaluator's presences.
 	own ownMemo
+	// full is the memo of Full (fullValues).
+	fullOnce sync.Once
+	full     Values
 }
 
 // groupSet lays out the resamples of a subset of an evaluator's presences
@@ -829,7 +832,18 @@ func (e *Evaluator) ones(keep map[int]bool) []int32 {
 }
 
 // Full returns the scores on all of the evaluator's test presences.
-func (e *Evaluator) Full() Values { return e.eval(e.ones(nil)) }
+func (e *Evaluator) Full() Values {
+	v := *e.fullValues()
+	v.Ratio, v.RatioOK, v.Omission = slices.Clone(v.Ratio), slices.Clone(v.RatioOK), slices.Clone(v.Omission)
+	return v
+}
+
+// fullValues returns the memo of Full, computed on the first call (every
+// comparison of the evaluator reads it): its slices must not be written.
+func (e *Evaluator) fullValues() *Values {
+	e.fullOnce.Do(func() { e.full = e.eval(e.ones(nil)) })
+	return &e.full
+}
 
 // BootSD returns the sample standard deviation (denominator B-1) of the
 // area-weighted AUC over the resamples of d restricted to the evaluator's
@@ -992,7 +1006,19 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	for k := range pa {
 		ca[pa[k]], cb[pb[k]] = 1, 1
 	}
-	fa, fb := a.eval(ca), b.eval(cb)
+	// A side whose presences are all common is scored on all of them:
+	// Full, computed once per evaluator.
+	var fa, fb Values
+	if len(pa) == len(a.ids) {
+		fa = *a.fullValues()
+	} else {
+		fa = a.eval(ca)
+	}
+	if len(pb) == len(b.ids) {
+		fb = *b.fullValues()
+	} else {
+		fb = b.eval(cb)
+	}
 	nE, nT := len(a.es), len(a.cut)
 	cmp.PartialROC = make([]Resampled, nE)
 	cmp.Omission = make([]Resampled, nT)
