@@ -314,6 +314,23 @@ func BenchmarkBootSD(b *testing.B) {
 	stop()
 }
 
+// BenchmarkOwnResamples times one evaluator's memo of resampled scores
+// (every score but the AUCs on each of B = 1000 full-size resamples of its
+// 500 test presences: the work per model x extent that a run's paired
+// comparisons cannot share), the evaluator of BenchmarkAverageRanks.
+func BenchmarkOwnResamples(b *testing.B) {
+	pr := newPairedRun(b, 1, 1, 500, false)
+	ev := pr.evals[0][0]
+	ev.ownResamples(pr.d) // the table of counts, drawn once
+	b.ReportAllocs()
+	stop := startCPU(b)
+	for i := 0; i < b.N; i++ {
+		ev.own.done = false
+		ev.ownResamples(pr.d)
+	}
+	stop()
+}
+
 // ranksOf is Ranks without the tie term.
 func ranksOf(v []float64) []float64 {
 	r, _ := Ranks(v)
