@@ -90,6 +90,8 @@ type Evaluator struct {
 	// the sum of squares, summed in window order as Spearman does.
 	midDev []float64
 	midSS  float64
+	// invShare[w] is 1/share of window w: boyceRho's order keys.
+	invShare []float64
 	// exactRho: every midDev is a multiple of 1/2 and there are at most
 	// maxExactWindows windows, so the Spearman sums are exact in float64
 	// (boyceRho).
@@ -99,6 +101,9 @@ type Evaluator struct {
 	// own is the memo of ownResamples: the scores on each resample of
 	// one Draws with all of the evaluator's presences.
 	own ownMemo
+	// full is the memo of Full (fullValues).
+	fullOnce sync.Once
+	full     Values
 }
 
 // groupSet lays out the resamples of a subset of an evaluator's presences
@@ -410,6 +415,10 @@ func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		e.midDev[w] = dy
 		e.midSS += dy * dy
 	}
+	e.invShare = make([]float64, len(e.win))
+	for w, bw := range e.win {
+		e.invShare[w] = 1 / bw.share
+	}
 	e.exactRho = len(e.midDev) <= maxExactWindows
 	for _, dy := range e.midDev {
 		if 2*dy != math.Trunc(2*dy) {
@@ -511,30 +520,66 @@ func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *V
 	if len(e.win) >= 3 {
 		ratio := resize(sc.ratio, len(e.win))
 		sc.ratio = ratio
-		win := e.win[:len(ratio)]
-		for w, span := range gs.winGroups[:len(ratio)] {
-			run := before[span[1]] - before[span[0]]
-			ratio[w] = (float64(run) / rf) / win[w].share
+		spans := gs.winGroups[:len(ratio)]
+		if e.exactRho {
+			// The ratios' order keys (boyceRho): run_w / share_w.
+			inv := e.invShare[:len(ratio)]
+			for w, span := range spans {
+				ratio[w] = float64(before[span[1]]-before[span[0]]) * inv[w]
+			}
+		} else {
+			win := e.win[:len(ratio)]
+			for w, span := range spans {
+				run := before[span[1]] - before[span[0]]
+				ratio[w] = (float64(run) / rf) / win[w].share
+			}
 		}
-		out.Boyce, out.BoyceOK = e.boyceRho(ratio, sc)
+		out.Boyce, out.BoyceOK = e.boyceRho(ratio, before, spans, rf, sc)
 	}
 }
+
+// nearKeys is the largest gap, in units in the last place, between two
+// of boyceRho's order keys whose ratios it computes to order them: keys
+// further apart differ by a factor above 1 + 2^-40, far more than the
+// 1 + 2^-50 their rounding (and the ratios') can make up.
+const nearKeys = 1 << 13
 
 // maxExactWindows is the most Boyce windows for which boyceRho's sums
 // are exact: n^3 < 2^53.
 const maxExactWindows = 200_000
 
 // boyceRho is boyceIndex(ratio, midpoints) with the midpoints' ranks
-// precomputed: the same operations in the same order as Spearman, so the
-// same bits. When e.exactRho, it adds up the sums in the ratios' order
-// instead of the windows': then every term is exact, so the order does not
-// matter. The ranks are half-integers, their mean (n+1)/2 is exact (the
-// ranks add up to n(n+1)/2 exactly), so each dx is a half-integer of
-// magnitude at most n/2, as each midDev is; each product dx midDev and
-// dx dx is a multiple of 1/4 below n^2/4 in magnitude, and every partial
-// sum a multiple of 1/4 below n^3/4, which float64 holds exactly for n^3 <
-// 2^53.
-func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
+// precomputed, for the Boyce P/E ratios
+//
+//	F_w = (run_w / r) / share_w
+//
+// of a multiset of r presences, run_w of them in window w (before and
+// spans as in evalGroups, rf = r).
+//
+// When e.exactRho, ratio holds order keys instead of F (y_w = run_w x
+// (1/share_w), one product where F takes two quotients) and the sums are
+// added up in the ratios' order instead of the windows': every term is
+// exact, so the order does not matter, and the result depends on F only
+// through its ranks. The ranks are half-integers, their mean (n+1)/2 is
+// exact (the ranks add up to n(n+1)/2 exactly), so each dx is a
+// half-integer of magnitude at most n/2, as each midDev is; each product
+// dx midDev and dx dx is a multiple of 1/4 below n^2/4 in magnitude, and
+// every partial sum a multiple of 1/4 below n^3/4, which float64 holds
+// exactly for n^3 < 2^53. The keys order as F does wherever they are
+// apart: with T_w = run_w / share_w and unit roundoff u = 2^-53, each of
+// the two roundings of F and of y stays within a factor 1 +- u, so
+//
+//	F_w r = T_w (1 + d1)(1 + d2),   y_w = T_w (1 + d3)(1 + d4),   |d| <= u,
+//
+// and y_b > y_a (1 + 2^-40) (keys more than nearKeys units in the last
+// place apart, both positive) gives F_b > F_a, as 2^-40 is far above the
+// 8u the four roundings on each side can make up. Zero keys are the
+// windows without a drawn presence (F = 0). Keys closer together form
+// a cluster whose F are computed and ordered, ties (equal F) taking the
+// mean of their ranks; the clusters lie in the order of their keys.
+// Otherwise the ratio holds F, and the sums are Spearman's, the same
+// operations in the same order, so the same bits.
+func (e *Evaluator) boyceRho(ratio []float64, before []int, spans [][2]int32, rf float64, sc *evalScratch) (float64, bool) {
 	var sxy, sxx float64
 	var zp, sp []int32
 	var sk []uint64
@@ -552,30 +597,52 @@ func (e *Evaluator) boyceRho(ratio []float64, sc *evalScratch) (float64, bool) {
 				sxx += dx * dx
 			}
 		}
-		// Position i of sk without ties has rank zeros+i+1: dx goes up by
-		// 1 (exactly) from one to the next.
+		// Position i of sk outside a cluster has rank zeros+i+1.
 		m := len(sk)
-		dx := float64(zeros+1) - mx
+		win := e.win[:len(ratio)]
 		for i := 0; i < m; {
-			if i+1 < m && sk[i+1] == sk[i] { // a tie: positions i to j-1
-				j := i + 2
-				for j < m && sk[j] == sk[i] {
-					j++
+			j := i + 1
+			for j < m && sk[j]-sk[j-1] <= nearKeys {
+				j++
+			}
+			if j == i+1 {
+				dx := float64(zeros+i+1) - mx
+				sxy += dx * e.midDev[sp[i]]
+				sxx += dx * dx
+				i++
+				continue
+			}
+			// A cluster, positions i to j-1: F's bits in order.
+			for q := i; q < j; q++ {
+				w := sp[q]
+				run := before[spans[w][1]] - before[spans[w][0]]
+				k, p := math.Float64bits((float64(run)/rf)/win[w].share), w
+				h := q
+				for h > i && sk[h-1] > k {
+					sk[h], sp[h] = sk[h-1], sp[h-1]
+					h--
 				}
-				dt := float64(zeros+i+zeros+j-1)/2 + 1 - mx
-				for ; i < j; i++ {
+				sk[h], sp[h] = k, p
+			}
+			for i < j { // a tie: positions i to t-1
+				t := i + 1
+				for t < j && sk[t] == sk[i] {
+					t++
+				}
+				dt := float64(zeros+i+zeros+t-1)/2 + 1 - mx
+				for ; i < t; i++ {
 					sxy += dt * e.midDev[sp[i]]
 					sxx += dt * dt
 				}
-				dx = float64(zeros+j+1) - mx
-				continue
 			}
-			sxy += dx * e.midDev[sp[i]]
-			sxx += dx * dx
-			dx++
-			i++
 		}
 	} else {
+		if e.exactRho { // keys that are not all >= +0 (no count or share gives such)
+			for w, span := range spans {
+				run := before[span[1]] - before[span[0]]
+				ratio[w] = (float64(run) / rf) / e.win[w].share
+			}
+		}
 		rx := averageRanksInto(ratio, sc)
 		mx := Mean(rx)
 		for i, r := range rx {
@@ -765,7 +832,18 @@ func (e *Evaluator) ones(keep map[int]bool) []int32 {
 }
 
 // Full returns the scores on all of the evaluator's test presences.
-func (e *Evaluator) Full() Values { return e.eval(e.ones(nil)) }
+func (e *Evaluator) Full() Values {
+	v := *e.fullValues()
+	v.Ratio, v.RatioOK, v.Omission = slices.Clone(v.Ratio), slices.Clone(v.RatioOK), slices.Clone(v.Omission)
+	return v
+}
+
+// fullValues returns the memo of Full, computed on the first call (every
+// comparison of the evaluator reads it): its slices must not be written.
+func (e *Evaluator) fullValues() *Values {
+	e.fullOnce.Do(func() { e.full = e.eval(e.ones(nil)) })
+	return &e.full
+}
 
 // BootSD returns the sample standard deviation (denominator B-1) of the
 // area-weighted AUC over the resamples of d restricted to the evaluator's
@@ -928,7 +1006,19 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	for k := range pa {
 		ca[pa[k]], cb[pb[k]] = 1, 1
 	}
-	fa, fb := a.eval(ca), b.eval(cb)
+	// A side whose presences are all common is scored on all of them:
+	// Full, computed once per evaluator.
+	var fa, fb Values
+	if len(pa) == len(a.ids) {
+		fa = *a.fullValues()
+	} else {
+		fa = a.eval(ca)
+	}
+	if len(pb) == len(b.ids) {
+		fb = *b.fullValues()
+	} else {
+		fb = b.eval(cb)
+	}
 	nE, nT := len(a.es), len(a.cut)
 	cmp.PartialROC = make([]Resampled, nE)
 	cmp.Omission = make([]Resampled, nT)

@@ -148,6 +148,84 @@ func TestAverageRanksInto(t *testing.T) {
 	}
 }
 
+// TestBoyceRhoNearTies: boyceRho's order keys (run / share) give the
+// Boyce index of Spearman on the ratios (run / r) / share bit for bit when
+// many windows have nearly or exactly the same ratio: shares made from
+// one share times the ratio of the runs, some moved by a few units in the
+// last place (keys and ratios then round apart in either order, or to the
+// same value), some shares and runs equal, and zeros.
+func TestBoyceRhoNearTies(t *testing.T) {
+	r := rand.New(rand.NewPCG(21, 22))
+	var sc evalScratch
+	clusters := 0
+	for trial := 0; trial < 2000; trial++ {
+		n := 3 + r.IntN(60)
+		runs := make([]int, n)
+		for w := range runs {
+			runs[w] = r.IntN(12)
+		}
+		total := 1 + r.IntN(40)
+		for _, c := range runs {
+			total += c
+		}
+		s0 := 0.01 + r.Float64()/4
+		e := &Evaluator{win: make([]boyceWindow, n), invShare: make([]float64, n)}
+		mid := make([]float64, n)
+		for w := range e.win {
+			share := s0
+			switch r.IntN(4) {
+			case 0, 1: // the ratio of window 0 up to a few units in the last place
+				if runs[0] > 0 && runs[w] > 0 {
+					share = s0 * float64(runs[w]) / float64(runs[0])
+				}
+				bits := int64(math.Float64bits(share)) + int64(r.IntN(7)-3)
+				share = math.Float64frombits(uint64(bits))
+			case 2:
+				share = s0 * (0.5 + r.Float64())
+			}
+			mid[w] = float64(w) / 7
+			e.win[w] = boyceWindow{mid: mid[w], share: share}
+			e.invShare[w] = 1 / share
+		}
+		ry, _ := Ranks(mid)
+		my := Mean(ry)
+		for _, y := range ry {
+			e.midDev = append(e.midDev, y-my)
+			e.midSS += (y - my) * (y - my)
+		}
+		e.exactRho = true
+		// Window w holds group w alone.
+		before := make([]int, n+1)
+		spans := make([][2]int32, n)
+		for w, c := range runs {
+			before[w+1] = before[w] + c
+			spans[w] = [2]int32{int32(w), int32(w + 1)}
+		}
+		rf := float64(total)
+		ratio := make([]float64, n)
+		keys := make([]float64, n)
+		for w, c := range runs {
+			ratio[w] = (float64(c) / rf) / e.win[w].share
+			keys[w] = float64(c) * e.invShare[w]
+		}
+		want, wantOK, _ := boyceIndex(ratio, mid)
+		got, ok := e.boyceRho(keys, before, spans, rf, &sc)
+		if got != want || ok != wantOK {
+			t.Fatalf("trial %d: runs %v: boyceRho %v (%v), Spearman %v (%v)", trial, runs, got, ok, want, wantOK)
+		}
+		slices.Sort(keys)
+		for i := 1; i < n; i++ {
+			if keys[i-1] > 0 && math.Float64bits(keys[i])-math.Float64bits(keys[i-1]) <= nearKeys {
+				clusters++
+				break
+			}
+		}
+	}
+	if clusters < 100 {
+		t.Errorf("only %d trials with keys closer than nearKeys: the test checks little of the clusters", clusters)
+	}
+}
+
 // TestEvalFastPath: evalInto with reused memory, and BootSD's AUC-only
 // loop, give bit for bit what the reference eval gives, on resamples
 // (many ties among the Boyce ratios) of evaluators with few and many
@@ -232,6 +310,23 @@ func BenchmarkBootSD(b *testing.B) {
 	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
 		ev.BootSD(d)
+	}
+	stop()
+}
+
+// BenchmarkOwnResamples times one evaluator's memo of resampled scores
+// (every score but the AUCs on each of B = 1000 full-size resamples of its
+// 500 test presences: the work per model x extent that a run's paired
+// comparisons cannot share), the evaluator of BenchmarkAverageRanks.
+func BenchmarkOwnResamples(b *testing.B) {
+	pr := newPairedRun(b, 1, 1, 500, false)
+	ev := pr.evals[0][0]
+	ev.ownResamples(pr.d) // the table of counts, drawn once
+	b.ReportAllocs()
+	stop := startCPU(b)
+	for i := 0; i < b.N; i++ {
+		ev.own.done = false
+		ev.ownResamples(pr.d)
 	}
 	stop()
 }
