@@ -2,6 +2,7 @@ package nullmodel
 
 import (
 	"math"
+	"math/bits"
 	"sync"
 
 	"areasweep/extent/geodesy"
@@ -344,21 +345,30 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // whose brackets reach the smallest upper end (the others are farther),
 // which is Index.Nearest's value bit for bit.
 func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
-	n := w * h
 	if f.ll == nil {
 		f.bracketProjected(x0, y0, w, h, need, bins, lo, hi)
 		return
 	}
+	f.bracketLonLat(x0, y0, w, h, need, bins, lo, hi, false)
+}
+
+// bracketLonLat is Bracket on a Field made by NewLonLat; with neg it sets
+// lo[i], hi[i] = 0-hi, 0-lo of Bracket's instead, bit for bit (Bounds).
+func (f *Field) bracketLonLat(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64, neg bool) {
+	n := w * h
 	// Every needed cell whose centre has a latitude in [-90, 90] gets its
 	// bracket below (the super-tiles, their patches or exactRange set it),
 	// so NaN goes only where that may not happen.
 	ll := f.ll
+	nan := math.NaN()
+	if neg {
+		nan = 0 - nan
+	}
 	if !(math.Abs(ll.lat(y0)) <= 90 && math.Abs(ll.lat(y0+h-1)) <= 90) {
 		for i := range n {
-			lo[i], hi[i] = math.NaN(), math.NaN()
+			lo[i], hi[i] = nan, nan
 		}
 	} else if need != nil {
-		nan := math.NaN()
 		for i, v := range need[:n] {
 			if v == 0 {
 				lo[i], hi[i] = nan, nan
@@ -380,9 +390,9 @@ func (f *Field) Bracket(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []f
 	if cap(sc.colC) < w {
 		sc.colC, sc.colS = make([]float64, w), make([]float64, w)
 	}
-	b := bracketer{f: f, ll: f.ll, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
+	b := bracketer{f: f, ll: f.ll, neg: neg, x0: x0, y0: y0, w: w, h: h, need: need, bins: bins, lo: lo, hi: hi, sc: sc, pending: sc.pending[:n],
 		clo: sc.clo[:n], chi: sc.chi[:n], rowA: sc.rowA[:h], rowZ: sc.rowZ[:h], colC: sc.colC[:w], colS: sc.colS[:w],
-		left: sc.left[:0], cover: &sc.cover, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}
+		left: sc.left[:0], cover: &sc.cover, cellLo: math.NaN(), cellHi: math.NaN(), quickBins: quickBins{scale: bins.FloorScale()}, binW: 1 / bins.FloorScale()}
 	b.setEdges()
 	for y := range h {
 		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
@@ -415,6 +425,7 @@ type bracketer struct {
 	need     []uint64
 	bins     Binner
 	lo, hi   []float64
+	neg      bool // lo and hi take 0-hi and 0-lo (bracketLonLat)
 	sc       *scratch
 	cands    []int
 	centreD  []float64 // exact distance from the super-tile's centre to each candidate
@@ -430,19 +441,17 @@ type bracketer struct {
 	// nothing) and the floor grid's scale.
 	cellLo, cellHi float64
 	cellClosed     bool
-	scale, binW    float64  // 2^-e and 2^e
-	big            *stencil // the stencil of super-tile row bigRow
-	bigRow         int
-	edges          []float64 // EdgeBinner's FloorEdges, or nil
-	nEdges         float64   // len(edges)
-	tail           bool      // the floor bins beyond edges hold no edge
-	sub            []float64 // SubEdgeBinner's SubFloorEdges, or nil
-	nSub           float64   // len(sub)
-	subScale       float64   // SubFloor * scale
-	cover          *geodesy.Cover
-	coverRow       int              // the row of super-tiles cover was filled for
-	coverSet       bool             // cover was filled (or tried) for coverRow
-	rowPar         geodesy.Parallel // the latitude of coverRow's centres
+	quickBins
+	binW     float64  // 2^e
+	big      *stencil // the stencil of super-tile row bigRow
+	bigRow   int
+	sub      []float64 // SubEdgeBinner's SubFloorEdges, or nil
+	nSub     float64   // len(sub)
+	subScale float64   // SubFloor * scale
+	cover    *geodesy.Cover
+	coverRow int              // the row of super-tiles cover was filled for
+	coverSet bool             // cover was filled (or tried) for coverRow
+	rowPar   geodesy.Parallel // the latitude of coverRow's centres
 }
 
 // setEdges takes the floor bins' edges of b.bins when it is an
@@ -477,6 +486,15 @@ type anchorSite struct {
 type chordSite struct {
 	p  [3]float64
 	cc float64
+	gg float64 // (cc - rho - 1)^2 when cc - rho - 1 > 0, else -Inf
+}
+
+// set sets the bracket of block cell i to [l, h] (negated when b.neg).
+func (b *bracketer) set(i int, l, h float64) {
+	if b.neg {
+		l, h = 0-h, 0-l
+	}
+	b.lo[i], b.hi[i] = l, h
 }
 
 // needed reports whether global cell (c, r) is in the block and needed.
@@ -653,32 +671,29 @@ func (b *bracketer) centreRows(y1, y2, x1, x2 int, st *stencil, j0 int) bool {
 		if b.need != nil {
 			need = b.need[row+x1 : row+x2]
 		}
-		var ls, hs [SuperTile]float64
 		if one != nil {
 			// Every cell's taylorBracket first, needed or not: one loop
-			// with no call.
+			// with no call. Its ends are finite (so are f0 and t), hence
+			// those of anchorBracket of the one site.
+			var ls, hs [SuperTile]float64
 			taylorRow(one, ts, sa, ca, ls[:len(lo)], hs[:len(lo)])
+			for fail := quickRow(&b.quickBins, b.neg, need, ls[:len(lo)], hs[:len(lo)], lo, hi); fail != 0; fail &= fail - 1 {
+				x := bits.TrailingZeros32(fail)
+				if l, h := ls[x], hs[x]; b.settled(l, h) {
+					b.set(row+x1+x, l, h)
+				} else {
+					pend = b.centreFailed(row+x1+x, st, jr+x1+x, l, h, 0, math.Inf(1)) || pend
+				}
+			}
+			continue
 		}
 		for x := range lo {
 			if need != nil && need[x] == 0 {
 				continue
 			}
-			var l, h float64
-			if one != nil {
-				// anchorBracket of one site.
-				l1, h1 := ls[x], hs[x]
-				l, h = math.Inf(1), math.Inf(1)
-				if l1 < l {
-					l = l1
-				}
-				if h1 < h {
-					h = h1
-				}
-			} else {
-				l, h = b.anchorBracket(st, jr+x1+x)
-			}
+			l, h := b.anchorBracket(st, jr+x1+x)
 			if b.quick(l, h) || b.settled(l, h) {
-				lo[x], hi[x] = l, h
+				b.set(row+x1+x, l, h)
 				continue
 			}
 			pend = b.centreFailed(row+x1+x, st, jr+x1+x, l, h, 0, math.Inf(1)) || pend
@@ -696,7 +711,7 @@ func (b *bracketer) centreCell(i int, st *stencil, j int, clo, chi float64) bool
 	// Both brackets hold the distance: keep their intersection.
 	lo, hi = max(lo, clo), min(hi, chi)
 	if b.quick(lo, hi) || b.settled(lo, hi) {
-		b.lo[i], b.hi[i] = lo, hi
+		b.set(i, lo, hi)
 		return false
 	}
 	return b.centreFailed(i, st, j, lo, hi, clo, chi)
@@ -781,58 +796,144 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 	// One site (the common case): its chord is the shortest, and the
 	// square of its z difference is the row's.
 	one, p0 := len(b.csites) == 1, b.csites[0].p
+	for k := range b.csites {
+		// The cut of the loop over the sites below: the chord from a cell
+		// is at least cc - rho, and once that exceeds the shortest chord
+		// so far (by 1 m for rounding), this site and the farther ones are
+		// farther still; never when cc - rho - 1 <= 0.
+		st := &b.csites[k]
+		st.gg = math.Inf(-1)
+		if g := st.cc - rho - 1; g > 0 {
+			st.gg = g * g
+		}
+	}
 	var ls, hs [SuperTile]float64
 	for y := y1; y < y2; y++ {
 		ar, zr := b.rowA[y], b.rowZ[y]
-		dz2 := (zr - p0[2]) * (zr - p0[2])
 		row := y * b.w
 		lo, hi := b.lo[row+x1:row+x2], b.hi[row+x1:row+x2]
 		colC, colS := b.colC[x1:x2], b.colS[x1:x2]
-		ls, hs := ls[:len(lo)], hs[:len(lo)]
-		// First every cell's chord bracket, needed or not: a loop with no
-		// branch to mispredict, so that the square roots overlap.
-		for x := range ls {
-			px, py := ar*colC[x], ar*colS[x]
-			var d2 float64
-			if one {
-				dx, dy := px-p0[0], py-p0[1]
-				d2 = dx*dx + dy*dy + dz2
-			} else {
-				// Both ends of chordBracket grow with the chord, so the
-				// minimum over the sites of each end is that of the
-				// shortest chord.
-				d2 = math.Inf(1)
-				for q := range b.csites {
-					st := &b.csites[q]
-					// The chord from the cell is at least cc - rho: once
-					// that exceeds the shortest chord so far (by 1 m for
-					// rounding), this site and the farther ones are farther
-					// still.
-					if g := st.cc - rho - 1; g > 0 && g*g > d2 {
-						break
-					}
-					dx, dy, dz := px-st.p[0], py-st.p[1], zr-st.p[2]
-					d2 = min(d2, dx*dx+dy*dy+dz*dz)
-				}
-			}
-			ls[x], hs[x] = chordBracket(math.Sqrt(d2))
-		}
 		var need []uint64
 		if b.need != nil {
 			need = b.need[row+x1 : row+x2]
 		}
-		for x, l := range ls {
-			if need != nil && need[x] == 0 {
+		ls, hs := ls[:len(lo)], hs[:len(lo)]
+		if one {
+			dz2 := (zr - p0[2]) * (zr - p0[2])
+			chordRowOne(ar, colC, colS, p0[0], p0[1], dz2, ls, hs)
+		} else {
+			chordRowSites(ar, zr, colC, colS, b.csites, ls, hs)
+		}
+		fail := quickRow(&b.quickBins, b.neg, need, ls, hs, lo, hi)
+		for ; fail != 0; fail &= fail - 1 {
+			x := bits.TrailingZeros32(fail)
+			if l, h := ls[x], hs[x]; b.settled(l, h) {
+				b.set(row+x1+x, l, h)
 				continue
 			}
-			if h := hs[x]; b.quick(l, h) || b.settled(l, h) {
-				lo[x], hi[x] = l, h
-				continue
-			}
-			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: l, hi: hs[x]})
+			b.left = append(b.left, leftCell{i: row + x1 + x, x: int32(x1 + x), y: int32(y), lo: ls[x], hi: hs[x]})
 		}
 	}
 	return false
+}
+
+// chordRowOne sets ls[x], hs[x] to chordBracket of the chord from each
+// cell x of a row (ECEF (ar colC[x], ar colS[x], z)) to the one candidate
+// site (px, py, pz), dz2 = (z - pz)^2, needed or not: a loop with no branch
+// to mispredict, so that the square roots overlap.
+func chordRowOne(ar float64, colC, colS []float64, px, py, dz2 float64, ls, hs []float64) {
+	colC, colS, hs = colC[:len(ls)], colS[:len(ls)], hs[:len(ls)]
+	for x := range ls {
+		dx, dy := ar*colC[x]-px, ar*colS[x]-py
+		ls[x], hs[x] = chordBracket(math.Sqrt(dx*dx + dy*dy + dz2))
+	}
+}
+
+// chordRowSites is chordRowOne with several candidate sites (sites, by
+// increasing chord from the super-tile's centre): the shortest chord, as
+// both ends of chordBracket grow with the chord.
+func chordRowSites(ar, z float64, colC, colS []float64, sites []chordSite, ls, hs []float64) {
+	colC, colS, hs = colC[:len(ls)], colS[:len(ls)], hs[:len(ls)]
+	for x := range ls {
+		px, py := ar*colC[x], ar*colS[x]
+		d2 := math.Inf(1)
+		for k := range sites {
+			st := &sites[k]
+			if st.gg > d2 {
+				break
+			}
+			dx, dy, dz := px-st.p[0], py-st.p[1], z-st.p[2]
+			d2 = min(d2, dx*dx+dy*dy+dz*dz)
+		}
+		ls[x], hs[x] = chordBracket(math.Sqrt(d2))
+	}
+}
+
+// quickRow sets lo[x], hi[x] = ls[x], hs[x] (0-hs[x], 0-ls[x] with neg)
+// for the cells x of a row (at most 32) whose need[x] != 0 (need nil:
+// every cell) and for which quick holds, and returns the others needed as
+// the bits of fail. With need nil it sets every cell's: the caller then
+// sets each failing cell's bracket again (every cell left to the anchors
+// gets one there, or is computed exactly).
+func quickRow(q *quickBins, neg bool, need []uint64, ls, hs, lo, hi []float64) (fail uint32) {
+	hs, lo, hi = hs[:len(ls)], lo[:len(ls)], hi[:len(ls)]
+	scale, nEdges, edges, tail := q.scale, q.nEdges, q.edges, q.tail
+	if need == nil {
+		// Every cell's bracket is stored, settled or not, and quick is
+		// evaluated in full: a loop with no branch to mispredict.
+		var tailBit uint32
+		if tail {
+			tailBit = 1
+		}
+		for x, l := range ls {
+			h := hs[x]
+			if neg {
+				lo[x], hi[x] = 0-h, 0-l
+			} else {
+				lo[x], hi[x] = l, h
+			}
+			// quickIn without a branch.
+			v := l * scale
+			c := math.Ceil(v)
+			ok := b2u(h-l <= 2*BracketTol*l) & b2u(v >= 0x1p-1000) & b2u(h*scale <= c)
+			in := b2u(c < nEdges)
+			k := 0
+			if in != 0 {
+				k = int(c)
+			}
+			e := math.Inf(1)
+			if uint(k) < uint(len(edges)) {
+				e = edges[k]
+			}
+			ok &= in&(b2u(0-l < e)|b2u(0-h > e)) | (in^1)&b2u(c >= nEdges)&tailBit
+			fail |= (ok ^ 1) << x
+		}
+		return fail
+	}
+	for x, l := range ls {
+		if need[x] == 0 {
+			continue
+		}
+		if h := hs[x]; quickIn(l, h, scale, nEdges, edges, tail) {
+			if neg {
+				lo[x], hi[x] = 0-h, 0-l
+			} else {
+				lo[x], hi[x] = l, h
+			}
+			continue
+		}
+		fail |= 1 << x
+	}
+	return fail
+}
+
+// b2u returns 1 for true and 0 for false, without a branch.
+func b2u(b bool) uint32 {
+	var u uint32
+	if b {
+		u = 1
+	}
+	return u
 }
 
 // exactWidth is the width, in floor bins, of the widest bracket from a
@@ -902,7 +1003,7 @@ func (b *bracketer) cell(i int, st *stencil, j int) bool {
 	// Both brackets hold the distance: keep their intersection.
 	lo, hi = max(lo, b.clo[i]), min(hi, b.chi[i])
 	if b.quick(lo, hi) || b.settled(lo, hi) {
-		b.lo[i], b.hi[i] = lo, hi
+		b.set(i, lo, hi)
 		return true
 	}
 	return false
@@ -945,14 +1046,16 @@ func (b *bracketer) exactRange(r0, c0, h, w int) {
 }
 
 // exactCell computes block cell i exactly with a nearest-site query, as
-// Distances does; a cell beyond the poles is left as it is.
+// Distances does; a cell beyond the poles gets NaN.
 func (b *bracketer) exactCell(i int) {
 	lat, lon := b.ll.lat(b.y0+i/b.w), b.ll.lon(b.x0+i%b.w)
 	if !(math.Abs(lat) <= 90) {
+		// NaN, as the block's rows beyond the poles have from the start.
+		b.set(i, math.NaN(), math.NaN())
 		return
 	}
 	_, d := b.f.ix.Nearest(lat, lon, 0)
-	b.lo[i], b.hi[i] = d, d
+	b.set(i, d, d)
 }
 
 // hLoFast and hHiFast bound the Hessian comparison bounds at distance r
@@ -1055,7 +1158,7 @@ func (b *bracketer) exact(i int, sites []anchorSite, st *stencil, j int, lat, lo
 		}
 		d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))
 	}
-	b.lo[i], b.hi[i] = d, d
+	b.set(i, d, d)
 }
 
 // sortSites sorts measured sites by distance at the anchor (insertion
@@ -1088,17 +1191,31 @@ func (b *bracketer) subQuick(lo, hi float64) bool {
 	return c < b.nSub && x >= 0x1p-1000 && hi*b.subScale <= c && (0-lo < b.sub[int(c)] || 0-hi > b.sub[int(c)])
 }
 
+// quickBins is what quick reads: a kernel copies it into its locals.
+type quickBins struct {
+	scale  float64   // 2^-e
+	nEdges float64   // len(edges)
+	edges  []float64 // EdgeBinner's FloorEdges, or nil
+	tail   bool      // the floor bins beyond edges hold no edge
+}
+
 // quick reports true only when settled does, without a call: when the
 // bracket is narrow enough and both ends share a floor bin and, by the
 // floor bin's edge (EdgeBinner), an exact bin. With x = lo s and y = hi s
 // (s = 2^-e: exact products for x >= 2^-1000), the floor bins of -hi and
 // -lo are -ceil(y) and -ceil(x), equal iff y <= ceil(x) (y >= x). A false
 // says nothing.
-func (b *bracketer) quick(lo, hi float64) bool {
-	x := lo * b.scale
+func (b *quickBins) quick(lo, hi float64) bool {
+	return quickIn(lo, hi, b.scale, b.nEdges, b.edges, b.tail)
+}
+
+// quickIn is quick on the fields of quickBins, for loops that keep them
+// in registers.
+func quickIn(lo, hi, scale, nEdges float64, edges []float64, tail bool) bool {
+	x := lo * scale
 	c := math.Ceil(x)
-	return hi-lo <= 2*BracketTol*lo && x >= 0x1p-1000 && hi*b.scale <= c &&
-		(c < b.nEdges && (0-lo < b.edges[int(c)] || 0-hi > b.edges[int(c)]) || c >= b.nEdges && b.tail)
+	return hi-lo <= 2*BracketTol*lo && x >= 0x1p-1000 && hi*scale <= c &&
+		(c < nEdges && (0-lo < edges[int(c)] || 0-hi > edges[int(c)]) || c >= nEdges && tail)
 }
 
 // sameBins reports whether the values -hi and -lo (lo <= hi) share their
@@ -1269,6 +1386,10 @@ func (f *Field) Bounds(x0, y0, w, h int, need []uint64, bins interface {
 	Cell(v float64) (lo, hi float64, closed bool)
 	FloorScale() float64
 }, lo, hi []float64) {
+	if f.ll != nil {
+		f.bracketLonLat(x0, y0, w, h, need, bins, lo, hi, true)
+		return
+	}
 	f.Bracket(x0, y0, w, h, need, bins, lo, hi)
 	for i := range lo[:w*h] {
 		lo[i], hi[i] = 0-hi[i], 0-lo[i]

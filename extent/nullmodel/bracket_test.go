@@ -181,7 +181,7 @@ func TestSubQuick(t *testing.T) {
 		fb := newFloorBins(l)
 		s := fb.FloorScale()
 		eb := subEdgeBins{edgeBins{fb, FloorEdges(l.Values(), s)}, FloorEdges(l.Values(), s*SubFloor)}
-		b := bracketer{bins: eb, cellLo: math.NaN(), cellHi: math.NaN(), scale: s, binW: 1 / s}
+		b := bracketer{bins: eb, cellLo: math.NaN(), cellHi: math.NaN(), quickBins: quickBins{scale: s}, binW: 1 / s}
 		b.setEdges()
 		if b.sub == nil {
 			t.Fatal("no sub-bins")

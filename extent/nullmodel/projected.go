@@ -243,7 +243,7 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 		}
 	}
 	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
-		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), scale: bins.FloorScale(), binW: 1 / bins.FloorScale()}}
+		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), quickBins: quickBins{scale: bins.FloorScale()}, binW: 1 / bins.FloorScale()}}
 	b.bins.setEdges()
 	for r0 := 0; r0 < h; r0 += tileSide {
 		for c0 := 0; c0 < w; c0 += tileSide {
