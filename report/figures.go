@@ -343,15 +343,16 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	return newFastTextCanvas(vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI)), img)
 }
 
-// inlineSVG prepares an SVG document for inlining in HTML: drops the XML
-// prolog and comment and gives the root element an id, a role and a label.
-func inlineSVG(svg []byte, id, label string) string {
+// appendInlineSVG appends to dst an SVG document prepared for inlining in
+// HTML: without the XML prolog and comment, the root element given an id,
+// a role and a label.
+func appendInlineSVG(dst, svg []byte, id, label string) []byte {
 	i := bytes.Index(svg, []byte("<svg"))
 	if i < 0 {
-		return string(svg)
+		return append(dst, svg...)
 	}
-	attrs := fmt.Sprintf(`<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
-	return attrs + string(svg[i+len("<svg"):]) // one copy of the document
+	dst = fmt.Appendf(dst, `<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
+	return append(dst, svg[i+len("<svg"):]...)
 }
 
 // svgFixes are fixSVG's replacements; no two can overlap.

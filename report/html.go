@@ -52,7 +52,7 @@ var (
 	reportJS       = template.JS(pageAsset("report.js"))
 )
 
-// htmlEscape escapes the label inlineSVG writes into an SVG's attributes;
+// htmlEscape escapes the label appendInlineSVG writes into an SVG's attributes;
 // everything else on the page is escaped by html/template.
 func htmlEscape(s string) string { return html.EscapeString(s) }
 
@@ -149,7 +149,7 @@ func verdictBadge(verdict Judgement, sentence string) badge {
 type figureView struct {
 	Number                     int
 	Name, Title, Caption, Note string
-	SVG                        template.HTML // from our own renderer, see inlineSVG
+	SVG                        template.HTML // a marker for the SVG (spliceSVGs)
 	DPI                        int
 	WidthMM                    string
 }
@@ -184,10 +184,29 @@ type pageView struct {
 
 // htmlPage builds report.html from the page template.
 func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error) {
+	// The template gets a marker in place of each figure's SVG, which
+	// goes in after (spliceSVGs): the SVGs are most of the page (7 MB at
+	// 60 extents), and through the template each was copied four times
+	// (into a string, into a string with its new root tag, into fmt's
+	// buffer, into the page).
+	v, err := newPageView(r, figs, methods, func(i int) template.HTML { return template.HTML(svgMarker(i)) })
+	if err != nil {
+		return nil, err
+	}
+	b := bytes.NewBuffer(make([]byte, 0, len(v.Data)+len(methods)+1<<20))
+	if err := pageTemplate.Execute(b, v); err != nil {
+		return nil, fmt.Errorf("report: report.html: %w", err)
+	}
+	return spliceSVGs(plainPlus(b.Bytes()), figs)
+}
+
+// newPageView returns the page's view, with svg(i) as the i-th figure's
+// SVG.
+func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i int) template.HTML) (pageView, error) {
 	s := r.Sensitivity
 	data, err := teachData(r)
 	if err != nil {
-		return nil, err
+		return pageView{}, err
 	}
 	v := pageView{
 		ErrorJS: errorCaptureJS, ReportJS: reportJS, CSS: reportCSS,
@@ -215,25 +234,39 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	for i, rf := range figs {
 		v.Figures = append(v.Figures, figureView{
 			Number: i + 1, Name: rf.fig.Name, Title: rf.fig.Title, Caption: rf.fig.Caption, Note: rf.fig.Note,
-			SVG:     template.HTML(inlineSVG(rf.svg, "fig-"+rf.fig.Name, rf.fig.Title)),
+			SVG:     svg(i),
 			DPI:     pngDPI,
 			WidthMM: strconv.Itoa(int(math.Round(float64(rf.fig.W / vg.Millimeter)))),
 		})
 	}
-	// The page is mostly the inlined figures: room for them at once
-	// rather than a chain of doublings, each fresh memory.
-	size := len(data) + len(methods) + 1<<20
+	return v, nil
+}
+
+// svgMarker is the text the page template gets in place of the i-th
+// figure's SVG: a comment that nothing else on the page holds.
+func svgMarker(i int) string { return fmt.Sprintf("<!--areasweep figure %d svg-->", i) }
+
+// spliceSVGs returns page with each figure's svgMarker replaced by the
+// figure's SVG as appendInlineSVG prepares it, in one buffer of the final size:
+// the bytes the template wrote when it was given the SVGs themselves
+// (plainPlus, run before, changes nothing in an SVG: vgsvg escapes '&').
+// A marker not found once, in order, is an internal error.
+func spliceSVGs(page []byte, figs []renderedFigure) ([]byte, error) {
+	size := len(page)
 	for _, rf := range figs {
-		size += len(rf.svg)
+		size += len(rf.svg) + 200 + len(htmlEscape(rf.fig.Title)) // the new root tag
 	}
-	// The tables and captions besides: a 60-extent page was 20 KB over
-	// the sum above, which cost a doubling of 7 MB.
-	size += size / 16
-	b := bytes.NewBuffer(make([]byte, 0, size))
-	if err := pageTemplate.Execute(b, v); err != nil {
-		return nil, fmt.Errorf("report: report.html: %w", err)
+	out := make([]byte, 0, size)
+	for i, rf := range figs {
+		m := svgMarker(i)
+		at := bytes.Index(page, []byte(m))
+		if at < 0 {
+			return nil, fmt.Errorf("report: report.html: internal error: no place for figure %s", rf.fig.Name)
+		}
+		out = appendInlineSVG(append(out, page[:at]...), rf.svg, "fig-"+rf.fig.Name, rf.fig.Title)
+		page = page[at+len(m):]
 	}
-	return plainPlus(b.Bytes()), nil
+	return append(out, page...), nil
 }
 
 // plainPlus writes back as '+' the "&#43;" that html/template uses for a

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"errors"
+	"html/template"
 	"image/png"
 	"os"
 	"path/filepath"
@@ -417,5 +418,40 @@ func TestWriteFiguresPanic(t *testing.T) {
 	err := writeFigures(t.TempDir(), []figure{metricsFigure(r), bad}, func([]renderedFigure) error { return nil })
 	if err == nil || !strings.Contains(err.Error(), "figure bad (svg): internal error: out of range") {
 		t.Errorf("error %v, want the SVG's internal error", err)
+	}
+}
+
+// TestSpliceSVGs builds the sample's page with the figures' SVGs spliced
+// in after the template (htmlPage) and with the SVGs given to the
+// template itself, and wants the same bytes.
+func TestSpliceSVGs(t *testing.T) {
+	r := analyzedSample(t)
+	var figs []renderedFigure
+	for _, f := range figures(r) {
+		svg, err := render(f, "svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		figs = append(figs, renderedFigure{fig: f, svg: svg})
+	}
+	got, err := htmlPage(r, figs, "methods")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := newPageView(r, figs, "methods", func(i int) template.HTML {
+		return template.HTML(appendInlineSVG(nil, figs[i].svg, "fig-"+figs[i].fig.Name, figs[i].fig.Title))
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var want bytes.Buffer
+	if err := pageTemplate.Execute(&want, v); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, plainPlus(want.Bytes())) {
+		t.Errorf("page of %d bytes with the SVGs spliced in, %d through the template", len(got), want.Len())
+	}
+	if len(figs) < 3 || !bytes.Contains(got, appendInlineSVG(nil, figs[2].svg, "fig-"+figs[2].fig.Name, figs[2].fig.Title)) {
+		t.Error("the third figure's SVG is not on the page")
 	}
 }
