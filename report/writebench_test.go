@@ -31,6 +31,35 @@ func BenchmarkWriteStudy(b *testing.B) {
 	b.ReportMetric(float64(processCPU()-c0)/float64(b.N), "cpu-ns/op")
 }
 
+// BenchmarkRenderStudy renders each figure of the results.json named by
+// AREASWEEP_BENCH_RESULTS (skipped otherwise) in each format, one at a
+// time, with the process CPU time of each as cpu-ns/op.
+func BenchmarkRenderStudy(b *testing.B) {
+	r := benchResults(b)
+	if err := Analyze(r); err != nil {
+		b.Fatal(err)
+	}
+	for _, f := range figures(r) {
+		for _, format := range figureFormats {
+			b.Run(f.Name+"/"+format, func(b *testing.B) {
+				var cpu time.Duration
+				for b.Loop() {
+					c0 := processCPU()
+					data, err := render(f, format)
+					if err != nil {
+						b.Fatal(err)
+					}
+					cpu += processCPU() - c0
+					if format != "svg" {
+						outBuffers.put(data)
+					}
+				}
+				b.ReportMetric(float64(cpu)/float64(b.N), "cpu-ns/op")
+			})
+		}
+	}
+}
+
 // benchResults loads the results.json named by AREASWEEP_BENCH_RESULTS and
 // skips the benchmark when it names none.
 func benchResults(b *testing.B) *Results {
