@@ -70,10 +70,15 @@ func (s *Study) checkFiles() error {
 // model and null lies on the same grid.
 func (s *Study) openGrid() error {
 	for i, m := range s.models {
-		if what := auxProblem(m.Path); what != "" {
+		if what, declared := auxProblem(m.Path); what != "" {
 			out := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.tif"
+			first := ""
+			if declared {
+				// GDAL skips such a file: the copy would lack it too.
+				first = "remove its first line (the XML declaration <?xml ...?>, which makes GDAL skip the file too), then "
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
-				"copy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, m.Path, out, out))
+				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, first, m.Path, out, out))
 		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
