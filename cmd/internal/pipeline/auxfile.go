@@ -2,9 +2,9 @@ package pipeline
 
 import (
 	"bytes"
-	"io"
 	"encoding/xml"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"strconv"
