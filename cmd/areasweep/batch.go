@@ -570,8 +570,10 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	case stale > 0:
 		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
 	}
-	return fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
-		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, ""))
+	// Shown: each line went through UserText; the ids are the user's own
+	// (a study named "report" or "pass" keeps its name).
+	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
 }
 
 // staleError is the error of a finished study made from other settings or
