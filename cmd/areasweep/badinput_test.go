@@ -278,6 +278,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	// hold one): GDAL would read it, areasweep does not.
 	auxNoData := f.file("auxnodata.tif", string(good))
 	f.file("auxnodata.tif.aux.xml", `<PAMDataset><PAMRasterBand band="1"><NoDataValue>0</NoDataValue></PAMRasterBand></PAMDataset>`)
+	// The same with an XML declaration first, which makes GDAL skip the
+	// file: the remedy says to remove that line first.
+	auxDeclared := f.file("auxdecl.tif", string(good))
+	f.file("auxdecl.tif.aux.xml", `<?xml version="1.0" encoding="ISO-8859-1"?>`+"\n"+`<PAMDataset><PAMRasterBand band="1"><NoDataValue>0</NoDataValue></PAMRasterBand></PAMDataset>`)
 	shifted := f.rasterWith(t, "shifted.tif", [6]float64{10.5, 0.25, 0, 48, 0, -0.25}, wgs, ridge)
 	// A sparse grid of 4096 x 16 million cells (within the grid size
 	// limits) run with 100 region buffers: each extent keeps a slice of runs
@@ -562,6 +566,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
 		{"model: an ASCII grid without .prj", f.withModel(f.file("noprj.asc", "ncols 2\nnrows 2\nxllcorner 10\nyllcorner 40\ncellsize 0.25\n1 2\n3 4\n")), 2, []string{"noprj.asc", "no coordinate reference system", "noprj.prj", "gdal_translate -a_srs"}, "", ""},
 		{"model with nodata in an .aux.xml only", f.withModel(auxNoData), 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0", "never reads .aux.xml", "gdal_translate " + auxNoData}, "", ""},
+		{"model whose .aux.xml begins with an XML declaration", f.withModel(auxDeclared), 2, []string{"model m", "auxdecl.tif.aux.xml", "the nodata value 0", "remove its first line", "gdal_translate " + auxDeclared}, "", ""},
+		// A null is named "model NAME" as in its other grid and data errors.
+		{"null with nodata in an .aux.xml only", f.run("--null", "n="+auxNoData), 2, []string{"model n", "auxnodata.tif.aux.xml", "the nodata value 0"}, "", ""},
+		{"extents: model with nodata in an .aux.xml only", []string{"extents", "--model", "m=" + auxNoData, "--occurrences", f.occ, "--region", f.region}, 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0"}, "", ""},
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},

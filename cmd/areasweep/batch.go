@@ -397,7 +397,7 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 	}
 	files, err := m.Inputs()
 	if err != nil {
-		return stateStale, staleness{fmt.Sprintf("from inputs its completion marker does not tell (%v)", err), "remove the folder"}, nil
+		return stateStale, staleness{fmt.Sprintf("from inputs its completion marker does not tell (%s)", fault.UserText(err)), "remove the folder"}, nil
 	}
 	c, err := st.inputs.Check(files)
 	if err != nil {
@@ -570,8 +570,10 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	case stale > 0:
 		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
 	}
-	return fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
-		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, ""))
+	// Shown: each line went through UserText; the ids are the user's own
+	// (a study named "report" or "pass" keeps its name).
+	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
 }
 
 // staleError is the error of a finished study made from other settings or
@@ -862,13 +864,16 @@ func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error
 func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) error {
 	rs := make([]report.StudyResult, len(studies))
 	for i, st := range studies {
-		rs[i] = report.StudyResult{ID: st.id, Err: errs[i]}
+		rs[i] = report.StudyResult{ID: st.id}
 		if errs[i] != nil {
+			// summary.csv and summary.html show it as the batch's
+			// message does, without areasweep's package names.
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
 		r, err := report.Load(filepath.Join(st.dir, "results.json"))
 		if err != nil {
-			rs[i].Err = err
+			rs[i].Err = errors.New(fault.UserText(err))
 			continue
 		}
 		rs[i].Results, rs[i].Report = r, st.id+"/report.html"

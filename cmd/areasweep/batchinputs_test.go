@@ -184,6 +184,28 @@ func TestBatchInputReplaced(t *testing.T) {
 	laterTime(t, aux)
 	batchOK("sidecar restored")
 
+	// A sidecar replaced by a folder of its name (a read would fail):
+	// stale, named, no package names in the summary's error column.
+	os.Remove(aux)
+	if err := os.Mkdir(aux, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code = runBin(t, "batch", table, "--out", out)
+	if code != 1 || !strings.Contains(se, "the model m file "+aux+" is no longer a file") {
+		t.Errorf("sidecar replaced by a folder: exit %d, want 1 naming %s: %s", code, aux, se)
+	}
+	for _, r := range readSummary(t, out) {
+		if !strings.Contains(r["error"], aux+" is no longer a file") || strings.Contains(r["error"], "batch: ") {
+			t.Errorf("sidecar replaced by a folder: summary error %q, want it naming %s without package names", r["error"], aux)
+		}
+	}
+	os.Remove(aux)
+	if err := os.WriteFile(aux, auxBytes, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	laterTime(t, aux)
+	batchOK("sidecar restored after the folder")
+
 	// A sidecar added: a world file beside the model.
 	tfw := filepath.Join(dir, "model.tfw")
 	if err := os.WriteFile(tfw, []byte("0.25\n0\n0\n-0.25\n10.125\n47.875\n"), 0o644); err != nil {

@@ -978,4 +978,41 @@ func TestMultiBandModelWarns(t *testing.T) {
 	if warned(w1) {
 		t.Errorf("one-band raster warned about bands: %q", w1)
 	}
+
+	// Split into 2 shards and merged: the same results.json, the warning
+	// once in it (not once per shard) and in the report.
+	base := []string{"--model", "m=" + multi, "--occurrences", s.occ, "--region", s.region, "--iterations", "5", "--no-distance-null", "--quiet"}
+	single := filepath.Join(t.TempDir(), "single")
+	if _, se, code := runBin(t, append([]string{"run", "--out", single}, base...)...); code != 0 {
+		t.Fatalf("single run: exit %d: %s", code, se)
+	}
+	merged := filepath.Join(t.TempDir(), "merged")
+	margs := []string{"merge", "--quiet", "--out", merged}
+	for i := 1; i <= 2; i++ {
+		out := filepath.Join(t.TempDir(), fmt.Sprint("shard", i))
+		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
+			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
+		}
+		margs = append(margs, out)
+	}
+	if _, se, code := runBin(t, margs...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, se)
+	}
+	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
+	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
+	if len(a) == 0 || !bytes.Equal(a, b) {
+		t.Error("a two-band model: the merged results.json differs from the single run's")
+	}
+	n := 0
+	for _, w := range loadResults(t, merged).Warnings {
+		if strings.Contains(w, "has 2 bands") {
+			n++
+		}
+	}
+	if n != 1 {
+		t.Errorf("merged results.json warns %d times about the bands, want once", n)
+	}
+	if html, _ := os.ReadFile(filepath.Join(merged, "report.html")); !strings.Contains(string(html), "has 2 bands; only the first is scored") {
+		t.Error("the merged report does not show the warning about the bands")
+	}
 }

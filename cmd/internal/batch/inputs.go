@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"syscall"
 )
 
 // InputFile is one input file of a finished study as its completion
@@ -92,15 +93,20 @@ type InputChange struct {
 	// .prj put beside a shapefile since). Otherwise SHA256 is its
 	// content's now.
 	Removed, Added bool
-	SHA256         string
+	// NotFile, with Removed: a directory or another non-file is at the
+	// path now.
+	NotFile bool
+	SHA256  string
 }
 
 // String says what changed, e.g. "the occurrences file /data/occ.csv
 // holds other content (SHA-256 0123456789ab then, ba9876543210 now)" or
 // "the model m file /data/m.tif.aux.xml was removed".
 func (c InputChange) String() string {
-	what := "the " + strings.ReplaceAll(c.File.Role, ":", " ") + " file " + c.File.Path
+	what := "the " + roleText(c.File.Role) + " file " + c.File.Path
 	switch {
+	case c.Removed && c.NotFile:
+		return what + " is no longer a file"
 	case c.Removed:
 		return what + " was removed"
 	case c.Added:
@@ -108,6 +114,9 @@ func (c InputChange) String() string {
 	}
 	return fmt.Sprintf("%s holds other content (SHA-256 %s then, %s now)", what, short(c.File.SHA256), short(c.SHA256))
 }
+
+// roleText is a role as a user reads it: "model:m" becomes "model m".
+func roleText(role string) string { return strings.ReplaceAll(role, ":", " ") }
 
 func short(sum string) string { return sum[:min(12, len(sum))] }
 
@@ -152,19 +161,24 @@ func (c *Checker) Check(files []InputFile) (InputCheck, error) {
 	touched := false
 	for i, f := range files {
 		st, err := os.Stat(f.Path)
-		if errors.Is(err, fs.ErrNotExist) {
+		if errors.Is(err, fs.ErrNotExist) || errors.Is(err, syscall.ENOTDIR) {
+			// ENOTDIR: a folder on the path is a file now.
 			r.Changed = append(r.Changed, InputChange{File: f, Removed: true})
 			continue
 		}
 		if err != nil {
-			return InputCheck{}, fmt.Errorf("batch: the %s file %s cannot be examined: %w", f.Role, f.Path, err)
+			return InputCheck{}, unreadable(f, err)
+		}
+		if !st.Mode().IsRegular() {
+			r.Changed = append(r.Changed, InputChange{File: f, Removed: true, NotFile: true})
+			continue
 		}
 		if st.Size() == f.Size && st.ModTime().UnixNano() == f.ModTime {
 			continue
 		}
 		sum, err := c.sum(f.Path, st)
 		if err != nil {
-			return InputCheck{}, fmt.Errorf("batch: the %s file %s: %w", f.Role, f.Path, err)
+			return InputCheck{}, unreadable(f, err)
 		}
 		if sum != f.SHA256 {
 			r.Changed = append(r.Changed, InputChange{File: f, SHA256: sum})
@@ -177,6 +191,17 @@ func (c *Checker) Check(files []InputFile) (InputCheck, error) {
 		r.Refreshed = fresh
 	}
 	return r, nil
+}
+
+// unreadable is the error of a recorded file that cannot be examined or
+// read: its role and path once, the system's reason (not the path again),
+// and what to do.
+func unreadable(f InputFile, err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	return fmt.Errorf("batch: the %s file %s cannot be read to check that it is the one the study was made from (%v); make it readable, or remove the study's folder to run it anew", roleText(f.Role), f.Path, err)
 }
 
 // sum is the SHA-256 of the file at path, st its stat taken before. It

@@ -1,6 +1,8 @@
 package batch
 
 import (
+	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -62,9 +64,33 @@ func TestCheckInputs(t *testing.T) {
 				t.Fatal(err)
 			}
 		}, changed: "the occurrences file %s was removed"},
+		{name: "replaced by a directory", change: func(t *testing.T, p string) {
+			os.Remove(p)
+			if err := os.Mkdir(p, 0o755); err != nil {
+				t.Fatal(err)
+			}
+		}, changed: "the occurrences file %s is no longer a file"},
+		{name: "its folder replaced by a file", change: func(t *testing.T, p string) {
+			os.RemoveAll(filepath.Dir(p))
+			if err := os.WriteFile(filepath.Dir(p), []byte("x"), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}, changed: "the occurrences file %s was removed"},
+		{name: "a symlink's target changed", change: func(t *testing.T, p string) {
+			other := filepath.Join(filepath.Dir(p), "other.csv")
+			if err := os.WriteFile(other, []byte("lon,lat\n9,9\n"), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			os.Chtimes(other, later, later)
+			os.Remove(p)
+			if err := os.Symlink(other, p); err != nil {
+				t.Fatal(err)
+			}
+		}, changed: "the occurrences file %s holds other content"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			p := filepath.Join(t.TempDir(), "occ.csv")
+			p := filepath.Join(t.TempDir(), "in put\tü", "occ.csv")
+			os.Mkdir(filepath.Dir(p), 0o755)
 			if err := os.WriteFile(p, []byte("lon,lat\n1,2\n"), 0o644); err != nil {
 				t.Fatal(err)
 			}
@@ -93,6 +119,19 @@ func TestCheckInputs(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestUnreadableInput: a recorded file that cannot be read (as when its
+// permissions became 000; root reads it anyway, so the error is made
+// here) is named once with its role as users read it, the system's
+// reason, and what to do.
+func TestUnreadableInput(t *testing.T) {
+	f := InputFile{Role: "model:m", Path: "/data/m.tif.aux.xml"}
+	got := unreadable(f, fmt.Errorf("batch: %w", &fs.PathError{Op: "open", Path: f.Path, Err: fs.ErrPermission})).Error()
+	want := "batch: the model m file /data/m.tif.aux.xml cannot be read to check that it is the one the study was made from (permission denied); make it readable, or remove the study's folder to run it anew"
+	if got != want {
+		t.Errorf("got  %q\nwant %q", got, want)
 	}
 }
 

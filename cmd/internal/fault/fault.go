@@ -10,7 +10,9 @@ package fault
 
 import (
 	"errors"
+	"os"
 	"regexp"
+	"strings"
 )
 
 // InputError marks an error caused by the user's input or flags.
@@ -65,24 +67,76 @@ func IsInternal(err error) bool {
 // packagePrefix is the "name: " with which areasweep's own packages begin
 // their errors (Go's convention for a library), at the start of a message
 // or after another part's ": ".
-var packagePrefix = regexp.MustCompile(`(?m)(^|: |^\s+)(?:batch|extent|geodesy|inputs|metrics|nullmodel|pass|place|report|scenario|shardfile|slurm): `)
+var packagePrefix = regexp.MustCompile(`(?m)(^|: |^\s+)(batch|extent|geodesy|inputs|metrics|nullmodel|pass|place|report|scenario|shardfile|slurm): `)
+
+// shownError is an error whose text is already as a user reads it.
+type shownError struct{ err error }
+
+func (e shownError) Error() string { return e.err.Error() }
+func (e shownError) Unwrap() error { return e.err }
+
+// Shown marks err as already in a user's words, put together from parts
+// that went through UserText and names of the user's own (study ids) that
+// UserText would take for package names: UserText returns its text whole.
+// The class of err (BadInput, Internal) is kept.
+func Shown(err error) error {
+	if err == nil {
+		return nil
+	}
+	return shownError{err}
+}
 
 // UserText returns an error message as a user reads it: without the names
 // of areasweep's packages that the layers below the command put in front
 // of their parts ("region: extent: F feature 1 is ..." becomes "region: F
 // feature 1 is ..."). What names a file, a flag, a model or a study is
-// kept; a bug's message (Internal) is shown as it is, with its package
-// names, for the report.
+// kept: "model pass: ..." (the name follows a word), and "pass: ..." when
+// a file or folder named pass is in the working folder (an input given by
+// that relative name). A bug's message (Internal) is shown as it is, with
+// its package names, for the report; so is a Shown error's.
 func UserText(err error) string {
-	msg := err.Error()
-	if IsInternal(err) {
-		return msg
+	var se shownError
+	if IsInternal(err) || errors.As(err, &se) {
+		return err.Error()
 	}
+	return strip(err.Error(), true)
+}
+
+// Text is UserText of a message that is not an error.
+func Text(msg string) string { return strip(msg, true) }
+
+// Warning is a warning that a run writes into its results (results.json,
+// run.log, the report) as a user reads it: without package names, as
+// Text, but the same whatever files the working folder holds, so that the
+// results stay byte-identical wherever the run is started. Warnings begin
+// with a path followed by a space, never by ": ", so no user's name is
+// lost ("extent: training points are collinear; ..." becomes "training
+// points are collinear; ...").
+func Warning(msg string) string { return strip(msg, false) }
+
+func strip(msg string, keepFiles bool) string {
 	for {
-		out := packagePrefix.ReplaceAllString(msg, "$1")
+		out := stripPackages(msg, keepFiles)
 		if out == msg {
 			return out
 		}
 		msg = out
 	}
+}
+
+// stripPackages drops each package name packagePrefix finds in msg once,
+// with keepFiles keeping those that are also the name of a file in the
+// working folder.
+func stripPackages(msg string, keepFiles bool) string {
+	var b strings.Builder
+	last := 0
+	for _, m := range packagePrefix.FindAllStringSubmatchIndex(msg, -1) {
+		if _, err := os.Lstat(msg[m[4]:m[5]]); keepFiles && err == nil {
+			continue // a file of that name: it may be the user's input
+		}
+		b.WriteString(msg[last:m[3]])
+		last = m[1]
+	}
+	b.WriteString(msg[last:])
+	return b.String()
 }

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"os"
 	"testing"
 )
 
@@ -51,5 +52,45 @@ func TestUserText(t *testing.T) {
 		if got := UserText(tc.err); got != tc.want {
 			t.Errorf("UserText(%q) = %q, want %q", tc.err.Error(), got, tc.want)
 		}
+	}
+}
+
+// TestUserTextKeepsUserNames: a file in the working folder named like a
+// package (an occurrence table saved as "pass", a raster as "report") and
+// a Shown message that lists studies with such ids keep those names; the
+// package names around them still go.
+func TestUserTextKeepsUserNames(t *testing.T) {
+	t.Chdir(t.TempDir())
+	for _, name := range []string{"pass", "report"} {
+		if err := os.WriteFile(name, nil, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	tests := []struct {
+		name string
+		err  error
+		want string
+	}{
+		{"occurrences file named pass", BadInput(errors.New("pass: file has no records")), "pass: file has no records"},
+		{"region named report, package names around", BadInput(errors.New("region: extent: report: not a polygon")), "region: report: not a polygon"},
+		{"no file named metrics", BadInput(errors.New("metrics: no test point")), "no test point"},
+		{"studies named pass and metrics listed", Shown(errors.New("2 of 2 studies failed: pass, metrics:\n  pass: x\n  metrics: y")), "2 of 2 studies failed: pass, metrics:\n  pass: x\n  metrics: y"},
+		{"a Shown input error keeps its class", Shown(BadInput(errors.New("metrics: kept"))), "metrics: kept"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := UserText(tc.err); got != tc.want {
+				t.Errorf("UserText(%q) = %q, want %q", tc.err.Error(), got, tc.want)
+			}
+		})
+	}
+	if got, want := Warning("extent: training points are collinear; the convex hull has no area; no hull extents"), "training points are collinear; the convex hull has no area; no hull extents"; got != want {
+		t.Errorf("Warning: %q, want %q", got, want)
+	}
+	if got, want := Warning("pass: x"), "x"; got != want {
+		t.Errorf("Warning does not depend on the files in the working folder: %q, want %q", got, want)
+	}
+	if !IsBadInput(Shown(BadInput(errors.New("x")))) {
+		t.Error("Shown lost the input class")
 	}
 }

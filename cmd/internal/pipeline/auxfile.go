@@ -1,8 +1,10 @@
 package pipeline
 
 import (
+	"bytes"
 	"encoding/xml"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"strconv"
@@ -38,18 +40,41 @@ type pamBand struct {
 // grid without a CRS. A file that repeats what the raster holds (as
 // desktop GIS tools write it, with statistics) is no problem. A file that
 // is not GDAL's XML is left alone: GDAL would not read it either.
-func auxProblem(path string) string {
+//
+// declared reports that the file begins with an XML declaration
+// (<?xml ...?>): GDAL (3.6) does not read such a file either (it takes
+// the declaration for the document's root), so GDAL's tools would not
+// apply what it sets until that line is removed. It is named all the
+// same: the user meant the values it holds.
+func auxProblem(path string) (what string, declared bool) {
 	data, err := os.ReadFile(path + ".aux.xml")
 	if err != nil {
-		return ""
+		return "", false
 	}
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	declared = bytes.HasPrefix(bytes.TrimLeft(data, " \t\r\n"), []byte("<?xml"))
 	var pam pamDataset
-	if xml.Unmarshal(data, &pam) != nil {
-		return ""
+	dec := xml.NewDecoder(bytes.NewReader(data))
+	// A file that declares a one-byte encoding (ISO-8859-1, windows-1252,
+	// as some tools write) is read as ISO-8859-1: the elements and numbers
+	// read here are ASCII, the same bytes in all of them.
+	dec.CharsetReader = func(_ string, r io.Reader) (io.Reader, error) {
+		b, err := io.ReadAll(r)
+		if err != nil {
+			return nil, err
+		}
+		u := make([]rune, len(b))
+		for i, c := range b {
+			u[i] = rune(c)
+		}
+		return strings.NewReader(string(u)), nil
+	}
+	if dec.Decode(&pam) != nil {
+		return "", false
 	}
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
-		return "" // OpenGrid reports it
+		return "", false // OpenGrid reports it
 	}
 	defer ds.Close()
 	var set []string
@@ -94,13 +119,13 @@ func auxProblem(path string) string {
 		}
 	}
 	if len(set) == 0 {
-		return ""
+		return "", false
 	}
-	what := set[0]
+	what = set[0]
 	if len(set) > 1 {
 		what = strings.Join(set[:len(set)-1], ", ") + " and " + set[len(set)-1]
 	}
-	return what
+	return what, declared
 }
 
 // parsePAMNumber reads a number as GDAL writes it in an auxiliary file

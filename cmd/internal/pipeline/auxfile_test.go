@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -79,6 +80,9 @@ func TestAuxProblem(t *testing.T) {
 		{"CRS the raster lacks", false, true, `<PAMDataset><SRS dataAxisToSRSAxisMapping="2,1">` + wkt + `</SRS><GeoTransform>  1.0e+01,  2.5e-01,  0.0e+00,  4.8e+01,  0.0e+00, -2.5e-01</GeoTransform></PAMDataset>`, []string{"the CRS", "the georeferencing"}},
 		{"CRS and georeferencing the raster has", true, true, `<PAMDataset><SRS>` + wkt + `</SRS><GeoTransform>1.0000000000000000e+01, 2.5000000000000000e-01, 0.0000000000000000e+00, 4.8000000000000000e+01, 0.0000000000000000e+00, -2.5000000000000000e-01</GeoTransform></PAMDataset>`, nil},
 		{"other georeferencing", true, true, `<PAMDataset><GeoTransform>11, 0.25, 0, 48, 0, -0.25</GeoTransform></PAMDataset>`, []string{"the georeferencing"}},
+		{"UTF-8 byte order mark", true, true, "\xef\xbb\xbf" + `<PAMDataset><PAMRasterBand band="1"><NoDataValue>0</NoDataValue></PAMRasterBand></PAMDataset>`, []string{"the nodata value 0"}},
+		{"XML declaration in ISO-8859-1 (GDAL skips the file: named, declared)", true, true, `<?xml version="1.0" encoding="ISO-8859-1"?>` + "\n" + `<PAMDataset><PAMRasterBand band="1"><Metadata><MDI key="author">J` + "\xfc" + `rg</MDI></Metadata><NoDataValue>0</NoDataValue></PAMRasterBand></PAMDataset>`, []string{"the nodata value 0"}},
+		{"XML declaration in UTF-8, same nodata with a decimal point", true, true, `<?xml version="1.0" encoding="UTF-8"?>` + "\n" + `<PAMDataset><PAMRasterBand band="1"><NoDataValue>-9999.0</NoDataValue></PAMRasterBand></PAMDataset>`, nil},
 		{"not XML", true, false, "this is not xml <", nil},
 		{"another XML document", true, false, `<VRTDataset><NoDataValue>0</NoDataValue></VRTDataset>`, nil},
 	}
@@ -91,7 +95,10 @@ func TestAuxProblem(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
-			got := auxProblem(p)
+			got, declared := auxProblem(p)
+			if want := strings.Contains(tc.aux, "<?xml") && len(tc.want) > 0; declared != want {
+				t.Errorf("declared = %v, want %v", declared, want)
+			}
 			if len(tc.want) == 0 {
 				if got != "" {
 					t.Fatalf("auxProblem = %q, want none", got)
@@ -102,6 +109,70 @@ func TestAuxProblem(t *testing.T) {
 				if !strings.Contains(got, w) {
 					t.Errorf("auxProblem = %q, want it to name %q", got, w)
 				}
+			}
+		})
+	}
+}
+
+// TestAuxProblemOtherRasters: an .aux.xml beside rasters other than a
+// GeoTIFF with nodata -9999. An ESRI ASCII grid whose header holds the
+// nodata value the .aux.xml repeats passes (QGIS writes such a file with
+// statistics); one whose .aux.xml sets another is named. A raster with
+// nodata NaN and an .aux.xml saying "nan" passes. An .aux.xml that is a
+// folder is not read (nor would GDAL read it): no problem.
+func TestAuxProblemOtherRasters(t *testing.T) {
+	const asc = "ncols 4\nnrows 3\nxllcorner 10\nyllcorner 47.25\ncellsize 0.25\nNODATA_value -9999\n1 2 3 -9999\n4 5 6 7\n8 9 10 11\n"
+	nodataAux := func(v string) string {
+		return `<PAMDataset><PAMRasterBand band="1"><NoDataValue>` + v + `</NoDataValue></PAMRasterBand></PAMDataset>`
+	}
+	tests := []struct {
+		name string
+		// raster writes the raster into dir and returns its path.
+		raster func(t *testing.T, dir string) string
+		aux    string // "" a folder named like the file
+		want   string // "" no problem
+	}{
+		{"ASCII grid, same nodata as its header", func(t *testing.T, dir string) string {
+			p := filepath.Join(dir, "m.asc")
+			os.WriteFile(p, []byte(asc), 0o644)
+			return p
+		}, nodataAux("-9999"), ""},
+		{"ASCII grid, other nodata", func(t *testing.T, dir string) string {
+			p := filepath.Join(dir, "m.asc")
+			os.WriteFile(p, []byte(asc), 0o644)
+			return p
+		}, nodataAux("0"), "the nodata value 0"},
+		{"nodata NaN, aux nan", func(t *testing.T, dir string) string {
+			p := tinyRaster(t, dir, "m.tif", true, false)
+			ds, err := godal.Open(p, godal.Update())
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := ds.Bands()[0].SetNoData(math.NaN()); err != nil {
+				t.Fatal(err)
+			}
+			ds.Close()
+			return p
+		}, nodataAux("nan"), ""},
+		{"aux file is a folder", func(t *testing.T, dir string) string {
+			return tinyRaster(t, dir, "m.tif", true, false)
+		}, "", ""},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			p := tc.raster(t, t.TempDir())
+			var err error
+			if tc.aux == "" {
+				err = os.Mkdir(p+".aux.xml", 0o755)
+			} else {
+				err = os.WriteFile(p+".aux.xml", []byte(tc.aux), 0o644)
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			got, _ := auxProblem(p)
+			if tc.want == "" && got != "" || !strings.Contains(got, tc.want) {
+				t.Errorf("auxProblem = %q, want %q", got, tc.want)
 			}
 		})
 	}

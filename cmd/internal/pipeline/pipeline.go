@@ -326,6 +326,7 @@ func (s *Study) logf(format string, args ...any) {
 }
 
 func (s *Study) warn(msg string) {
+	msg = fault.Warning(msg) // e.g. the extent family's "extent: ...; no hull extents"
 	s.res.Warnings = append(s.res.Warnings, msg)
 	s.logf("warning: %s", msg)
 }

@@ -15,6 +15,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
 
@@ -70,17 +71,22 @@ func (s *Study) checkFiles() error {
 // model and null lies on the same grid.
 func (s *Study) openGrid() error {
 	for i, m := range s.models {
-		if what := auxProblem(m.Path); what != "" {
+		if what, declared := auxProblem(m.Path); what != "" {
 			out := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.tif"
+			first := ""
+			if declared {
+				// GDAL skips such a file: the copy would lack it too.
+				first = "remove its first line (the XML declaration <?xml ...?>, which makes GDAL skip the file too), then "
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
-				"copy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, m.Path, out, out))
+				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out))
 		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
 			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
 				// gdal_edit.py records the CRS of other formats in an
 				// .aux.xml file, which areasweep does not read.
-				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + m.Path + " " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".tif"
+				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + shellArg(m.Path) + " " + shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+".tif")
 				if ext == ".asc" {
 					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
 				}
@@ -95,11 +101,11 @@ func (s *Study) openGrid() error {
 		if msg := maskProblem(m.Path); msg != "" {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
-				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, m.Path, strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif"))
+				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
 		}
 		if n := bandCount(m.Path); n > 1 {
 			stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
-			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s_b2.tif, and give that file)", m.Name, m.Path, n, m.Path, stem))
+			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s, and give that file)", m.Name, m.Path, n, shellArg(m.Path), shellArg(stem+"_b2.tif")))
 		}
 		if i == 0 {
 			s.grid = g
@@ -115,6 +121,23 @@ func (s *Study) openGrid() error {
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
 	return nil
+}
+
+// shellArg is path as a shell command's argument in the commands the
+// messages suggest: as it is when it holds only letters, digits and
+// "_-+./:=,@%" (every path of the demo and of most studies), else in
+// single quotes, a quote inside written '\” (a path with a space would
+// otherwise be two arguments).
+func shellArg(path string) string {
+	for _, r := range path {
+		if !(r < utf8.RuneSelf && (r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("_-+./:=,@%", r))) {
+			return "'" + strings.ReplaceAll(path, "'", `'\''`) + "'"
+		}
+	}
+	if path == "" {
+		return "''"
+	}
+	return path
 }
 
 // bandCount returns the number of bands of the raster at path (0 when
