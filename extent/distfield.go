@@ -49,7 +49,8 @@ const walkSide = 8
 //     settle is walked cell by cell (walkTile): a cell takes the class of a
 //     neighbour already classified while the neighbour's room (its gap to
 //     the nearest cut) exceeds the step between them, and is queried
-//     otherwise, against the listed sites when they are few. Rooms pass
+//     otherwise, against the listed sites when they are few
+//     (Near.StraightBounds: the smallest straight distance). Rooms pass
 //     across tile edges: a tile settled whole gives its cells the room
 //     its centre's gap leaves beyond rho.
 //
@@ -352,7 +353,11 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // Near a cut the rooms are small and every cell is queried; a little way
 // off, one query settles a cone of cells below and to the right. tileHi
 // and tileRho are wholeTile's for this tile, or +Inf and 0 (see
-// nearSites); the tile's sites are listed at its first query. Cells
+// nearSites); the tile's sites are listed at its first query, and a
+// cell's bounds then come from the smallest straight distance to them
+// (Near.StraightBounds: a lower bound a few metres short at hundreds of
+// kilometres, which costs a cell an exact query only in the rare case
+// that a cut lies in those metres). Cells
 // outside the reach box (pts.in) are farther than maxD.
 func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
 	band, maxD, m, w := fl.band, fl.maxD, len(fl.cuts), fl.w
@@ -412,7 +417,7 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 				pt := pts.at(k, c)
 				lo, hi, ok := 0.0, 0.0, false
 				if near != nil {
-					lo, hi, ok = near.QuickBounds(&pt)
+					lo, hi, ok = near.StraightBounds(&pt)
 				}
 				if !ok {
 					lo, hi = pts.bounds(ix, &pt, maxD)
