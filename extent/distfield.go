@@ -49,7 +49,8 @@ const walkSide = 8
 //     settle is walked cell by cell (walkTile): a cell takes the class of a
 //     neighbour already classified while the neighbour's room (its gap to
 //     the nearest cut) exceeds the step between them, and is queried
-//     otherwise, against the listed sites when they are few. Rooms pass
+//     otherwise, against the listed sites when they are few
+//     (Near.StraightBounds: the smallest straight distance). Rooms pass
 //     across tile edges: a tile settled whole gives its cells the room
 //     its centre's gap leaves beyond rho.
 //
@@ -352,11 +353,18 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // Near a cut the rooms are small and every cell is queried; a little way
 // off, one query settles a cone of cells below and to the right. tileHi
 // and tileRho are wholeTile's for this tile, or +Inf and 0 (see
-// nearSites); the tile's sites are listed at its first query. Cells
+// nearSites; near, the enclosing tile's list, serves when it is not
+// empty); the tile's sites are listed at its first query, and a
+// cell's bounds then come from the smallest straight distance to them
+// (Near.StraightBounds: a lower bound a few metres short at hundreds of
+// kilometres, which costs a cell an exact query only in the rare case
+// that a cut lies in those metres). Cells
 // outside the reach box (pts.in) are farther than maxD.
 func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
 	band, maxD, m, w := fl.band, fl.maxD, len(fl.cuts), fl.w
-	listed := near != nil
+	// An empty list (steps.none: the enclosing tile's was too long) is
+	// tried again for this smaller tile, with the longer limit.
+	listed := near != nil && near.Len() > 0
 	for r := t0; r < t1; r++ {
 		k := r - band
 		lons, lats := pts.lons[k], pts.lats[k]
@@ -412,7 +420,7 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 				pt := pts.at(k, c)
 				lo, hi, ok := 0.0, 0.0, false
 				if near != nil {
-					lo, hi, ok = near.QuickBounds(&pt)
+					lo, hi, ok = near.StraightBounds(&pt)
 				}
 				if !ok {
 					lo, hi = pts.bounds(ix, &pt, maxD)
@@ -459,9 +467,17 @@ type bandSteps struct {
 	none    geodesy.Near // empty: the tile had too many
 }
 
-// maxNear is the longest list of sites walkTile bounds its cells
-// against; with more, each cell's bounds come from the index's tree.
+// maxNear is the longest list of sites a split tile's quarters are
+// bounded against (Near.QuickBounds, two squared chords a site); with
+// more, they are bounded from the index's tree and their walked tiles
+// list their own sites.
 const maxNear = 32
+
+// maxWalkNear is the longest list of sites walkTile bounds its cells
+// against (Near.StraightBounds, one squared chord a site, where a tree
+// query costs about as much as a hundred); with more, each cell's bounds
+// come from the index's tree.
+const maxWalkNear = 128
 
 // nearSites returns the sites that may be nearest to some cell of the tile
 // of band rows [t0,t1) and columns [c0,c1): with c its centre cell, rho a
@@ -469,7 +485,7 @@ const maxNear = 32
 // c's nearest distance (both wholeTile's when hi is finite, else measured
 // as wholeTile does), every site within hi + 2 rho of c, since a cell x has d(x) <= d(c) + rho and its nearest site lies within
 // rho + d(x) of c. The list is empty (so unused) when it would be longer
-// than maxNear, when a coordinate is missing, or when no site lies within
+// than maxWalkNear, when a coordinate is missing, or when no site lies within
 // maxD + rho of c (then no cell has one within maxD): nearSites then
 // returns nil.
 func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int, hi, rho float64) *geodesy.Near {
@@ -499,9 +515,9 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 }
 
 // listNear lists the sites within radius of pt, or returns nil when they
-// are more than maxNear.
+// are more than maxWalkNear.
 func (st *bandSteps) listNear(ix *geodesy.Index, pt *geodesy.Point, radius float64) *geodesy.Near {
-	if !ix.NearSitesUpTo(pt, radius, maxNear, &st.near) {
+	if !ix.NearSitesUpTo(pt, radius, maxWalkNear, &st.near) {
 		return nil
 	}
 	return &st.near

@@ -28,7 +28,7 @@ func (ix *Index) CoverSites(pt *Point, radius float64, limit int, c *Cover) bool
 	c.ix, c.covered = ix, false
 	var n Near
 	n.slots = c.slots[:0]
-	if !pt.ok || !(radius >= 0) || !ix.NearSitesUpTo(pt, radius, limit, &n) {
+	if !pt.ok || !(radius >= 0) || !ix.nearSitesUpTo(pt, radius, limit, &n) {
 		c.slots = n.slots[:0]
 		return false
 	}

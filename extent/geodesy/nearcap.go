@@ -8,7 +8,20 @@ import "math"
 // Callers that use a list only when it is short (a long one costs more
 // per bound than the tree) so skip most of the search for long ones.
 func (ix *Index) NearSitesUpTo(pt *Point, radius float64, limit int, n *Near) bool {
-	n.ix, n.slots = ix, n.slots[:0]
+	n.ecef = n.ecef[:0]
+	if !ix.nearSitesUpTo(pt, radius, limit, n) {
+		return false
+	}
+	for _, s := range n.slots {
+		n.ecef = append(n.ecef, ix.ecef[s])
+	}
+	return true
+}
+
+// nearSitesUpTo is NearSitesUpTo without the list's ECEF positions (for
+// CoverSites, which keeps the slots only).
+func (ix *Index) nearSitesUpTo(pt *Point, radius float64, limit int, n *Near) bool {
+	n.ix, n.slots, n.ecef = ix, n.slots[:0], n.ecef[:0]
 	if !pt.ok || math.IsNaN(radius) || radius < 0 {
 		return true
 	}

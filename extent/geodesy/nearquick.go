@@ -45,3 +45,35 @@ func (n *Near) QuickBounds(pt *Point) (lo, hi float64, ok bool) {
 	}
 	return lo, hi, true
 }
+
+// StraightBounds returns bounds lo <= s <= hi on the geodesic distance s
+// from pt to its nearest site, valid, like QuickBounds, provided that site
+// is in the list, from the smallest straight (ECEF) distance D* over the
+// listed sites alone:
+//
+//	lo = D* (1 - 1e-12) - margin     (bound (2) of Index)
+//	hi = sectionUpper(D*)
+//
+// It skips QuickBounds' rectifying chords (one squared chord per site and
+// an arcsine): lo falls short of s by about s^3 / (24 R^2) (1 m at 100 km,
+// 28 m at 300 km), where bound (1) can be tighter on north-south lines
+// longer than a few hundred kilometres; callers that need an interval only
+// far from a threshold lose little. Beyond sectionUpper's 3000 km it is
+// QuickBounds. ok is false for an empty list or an invalid point.
+func (n *Near) StraightBounds(pt *Point) (lo, hi float64, ok bool) {
+	if len(n.slots) == 0 || !pt.ok {
+		return 0, 0, false
+	}
+	e := math.Inf(1)
+	for i := range n.ecef {
+		if d := d2(&n.ecef[i], &pt.p); d < e {
+			e = d
+		}
+	}
+	chord := math.Sqrt(e)
+	hi = sectionUpper(chord)
+	if math.IsInf(hi, 1) {
+		return n.QuickBounds(pt)
+	}
+	return math.Max(0, chord*(1-marginRel)-marginAbs), hi, true
+}

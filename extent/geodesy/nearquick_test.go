@@ -56,3 +56,58 @@ func TestNearQuickBounds(t *testing.T) {
 		t.Error("an empty list gave bounds")
 	}
 }
+
+// TestNearStraightBounds: for points x within rho of a centre c,
+// StraightBounds over the sites NearSitesUpTo lists within hi(c) + 2 rho
+// brackets x's exact nearest distance (Nearest); its upper bound is
+// QuickBounds' (the same straight distance) and its interval, up to
+// 1000 km, at most s^3 / (12 R^2) + 1 m wider than the exact distance
+// (the shortfall of bound (2)); beyond 3000 km it is QuickBounds'
+// interval.
+func TestNearStraightBounds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(6, 10))
+	ix, _, _ := randomIndex(t, rng, 200, 40, 15, -5, 25)
+	var n Near
+	far, near := 0, 0
+	for q := 0; q < 400; q++ {
+		clat, clon := 30+35*rng.Float64(), -15+45*rng.Float64()
+		if q%40 == 0 {
+			clat, clon = -40*rng.Float64(), 100+20*rng.Float64() // thousands of km away
+		}
+		c := NewPoint(clat, clon)
+		const rho = 20e3
+		_, hi, _ := ix.BoundsAt(&c, 0, -1)
+		if !ix.NearSitesUpTo(&c, hi+2*rho, 1000, &n) {
+			t.Fatal("list incomplete with a limit above the number of sites")
+		}
+		for range 20 {
+			x := NewPoint(clat+0.09*(rng.Float64()-0.5), clon+0.12*(rng.Float64()-0.5))
+			_, d := ix.Nearest(x.Lat(), x.Lon(), 0)
+			lo, hi, ok := n.StraightBounds(&x)
+			if !ok || d < lo || d > hi {
+				t.Fatalf("(%v, %v): distance %v, StraightBounds [%v, %v] (ok %v)", x.Lat(), x.Lon(), d, lo, hi, ok)
+			}
+			qlo, qhi, _ := n.QuickBounds(&x)
+			switch {
+			case d > 3000e3:
+				far++
+				if lo != qlo || hi != qhi {
+					t.Fatalf("(%v, %v) at %v m: StraightBounds [%v, %v], QuickBounds [%v, %v]", x.Lat(), x.Lon(), d, lo, hi, qlo, qhi)
+				}
+			case d < 1000e3:
+				near++
+				const R = 6371e3
+				if hi != qhi || hi-lo > d*d*d/(12*R*R)+1 {
+					t.Fatalf("(%v, %v) at %v m: StraightBounds [%v, %v], QuickBounds [%v, %v]", x.Lat(), x.Lon(), d, lo, hi, qlo, qhi)
+				}
+			}
+		}
+	}
+	if far == 0 || near < 400*20/2 {
+		t.Errorf("%d points beyond 3000 km, %d within 1000 km", far, near)
+	}
+	var empty Near
+	if _, _, ok := empty.StraightBounds(&Point{}); ok {
+		t.Error("an empty list gave bounds")
+	}
+}

@@ -134,6 +134,7 @@ func (ix *Index) chordBounds(st *query, kq float64) (lo, hi float64) {
 type Near struct {
 	ix    *Index
 	slots []int32
+	ecef  [][3]float64 // ECEF position of each listed site, in list order
 }
 
 // NearSites fills n with every site that may lie within radius metres
@@ -142,7 +143,7 @@ type Near struct {
 // radius - rho from pt (e.g. radius = hi + 2 rho with hi >= the nearest
 // distance at pt), the nearest site of x is in the list.
 func (ix *Index) NearSites(pt *Point, radius float64, n *Near) {
-	n.ix, n.slots = ix, n.slots[:0]
+	n.ix, n.slots, n.ecef = ix, n.slots[:0], n.ecef[:0]
 	if !pt.ok || math.IsNaN(radius) || radius < 0 {
 		return
 	}
@@ -153,6 +154,7 @@ func (ix *Index) NearSites(pt *Point, radius float64, n *Near) {
 	ix.collect(0, len(ix.pts), &st, &buf)
 	for _, c := range buf {
 		n.slots = append(n.slots, c.slot)
+		n.ecef = append(n.ecef, ix.ecef[c.slot])
 	}
 	if cap(buf) <= maxPooledCands {
 		*bp = buf[:0]
