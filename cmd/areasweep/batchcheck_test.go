@@ -170,19 +170,7 @@ func TestSlurmPendingStale(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, force := range []bool{false, true} {
-		o := &BatchOptions{Table: table2, Out: out, Shards: 1, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}}
-		studies, err := resolveBatch(o)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p, err := slurmPlan(o, studies)
-		if err != nil {
-			t.Fatal(err)
-		}
-		pending, stale, err := slurmPending(o, p, studies)
-		if err != nil {
-			t.Fatal(err)
-		}
+		pending, stale := slurmPendingOf(t, &BatchOptions{Table: table2, Out: out, Shards: 1, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}})
 		// Tasks: 1 alpha (finished, same row), 2 beta (finished, row
 		// changed), 3 broken (never finished).
 		wantPending, wantStale := []int{3}, []string{"beta"}
@@ -298,4 +286,23 @@ func TestTwoBatchesOnOneFolder(t *testing.T) {
 			t.Errorf("summary row %v", row)
 		}
 	}
+}
+
+// slurmPendingOf resolves the batch of o and returns the tasks --slurm
+// would submit and the studies it finds stale (slurmPending).
+func slurmPendingOf(t *testing.T, o *BatchOptions) ([]int, []staleStudy) {
+	t.Helper()
+	studies, err := resolveBatch(o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := slurmPlan(o, studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pending, stale, err := slurmPending(o, p, studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return pending, stale
 }

@@ -298,19 +298,7 @@ func TestSlurmPendingInputReplaced(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, force := range []bool{false, true} {
-			o := &BatchOptions{Table: table, Out: out, Shards: shards, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}}
-			studies, err := resolveBatch(o)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p, err := slurmPlan(o, studies)
-			if err != nil {
-				t.Fatal(err)
-			}
-			pending, stale, err := slurmPending(o, p, studies)
-			if err != nil {
-				t.Fatal(err)
-			}
+			pending, stale := slurmPendingOf(t, &BatchOptions{Table: table, Out: out, Shards: shards, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}})
 			// Tasks: a's (occ.csv replaced), then b's (unchanged).
 			wantPending, wantStale := []int{1}, "[a]"
 			if shards == 2 {
@@ -332,7 +320,7 @@ func TestSlurmPendingInputReplaced(t *testing.T) {
 			if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(ids) != wantStale {
 				t.Errorf("shards %d, force %v: pending %v, stale %v; want %v, %s", shards, force, pending, ids, wantPending, wantStale)
 			}
-			_, err = os.Stat(filepath.Join(out, "a", ".areasweep-done"))
+			_, err := os.Stat(filepath.Join(out, "a", ".areasweep-done"))
 			if force == (err == nil) {
 				t.Errorf("shards %d, force %v: a's marker: %v", shards, force, err)
 			}
