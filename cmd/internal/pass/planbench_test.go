@@ -103,27 +103,10 @@ func BenchmarkPlan(b *testing.B) {
 		b.Fatal(err)
 	}
 	defer g.Close()
-	nx, ny := (w+side-1)/side, (h+side-1)/side
 	for _, n := range []int{13, 60} {
 		fam := planFamily(g, n)
 		groups := fam.Groups()
-		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
-			ws := newWorkerState(side, side)
-			var cpu int64
-			for b.Loop() {
-				t0 := cpuNow(b)
-				bs := newBands(fam, groups, w, nx, side, RowRange{0, h})
-				for i := range nx * ny {
-					x0, y0 := (i%nx)*side, (i/nx)*side
-					blk := block{x0: x0, y0: y0, w: min(side, w-x0), h: min(side, h-y0)}
-					bd := bs.get(i/nx, ws)
-					ws.planBlock(bd, blk)
-					bs.done(i/nx, bd)
-				}
-				cpu += cpuNow(b) - t0
-			}
-			b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
-		})
+		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) { planBlocks(b, fam, groups, w, h, side) })
 	}
 }
 
@@ -147,7 +130,6 @@ func BenchmarkPlanStudy(b *testing.B) {
 	defer g.Close()
 	train := studyTrain(b, filepath.Join(dir, "occurrences.csv"))
 	w, h, side := g.Width, g.Height, 256
-	nx, ny := (w+side-1)/side, (h+side-1)/side
 	for _, n := range []int{13, 60} {
 		region, points := benchfamily.Buffers(n)
 		spec := extent.Spec{Region: filepath.Join(dir, "region.geojson"), RegionBuffersKm: region, Train: train, PointBuffersKm: points, HullBuffersKm: []float64{0}}
@@ -156,24 +138,29 @@ func BenchmarkPlanStudy(b *testing.B) {
 			b.Fatal(err)
 		}
 		groups := fam.Groups()
-		b.Run(fmt.Sprintf("extents=%d", len(fam.Members)), func(b *testing.B) {
-			ws := newWorkerState(side, side)
-			var cpu int64
-			for b.Loop() {
-				t0 := cpuNow(b)
-				bs := newBands(fam, groups, w, nx, side, RowRange{0, h})
-				for i := range nx * ny {
-					x0, y0 := (i%nx)*side, (i/nx)*side
-					blk := block{x0: x0, y0: y0, w: min(side, w-x0), h: min(side, h-y0)}
-					bd := bs.get(i/nx, ws)
-					ws.planBlock(bd, blk)
-					bs.done(i/nx, bd)
-				}
-				cpu += cpuNow(b) - t0
-			}
-			b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
-		})
+		b.Run(fmt.Sprintf("extents=%d", len(fam.Members)), func(b *testing.B) { planBlocks(b, fam, groups, w, h, side) })
 	}
+}
+
+// planBlocks plans every block of side x side cells of a w x h grid for
+// fam on one worker, as a pass does, and reports the CPU time per block.
+func planBlocks(b *testing.B, fam *extent.Family, groups [][]int, w, h, side int) {
+	nx, ny := (w+side-1)/side, (h+side-1)/side
+	ws := newWorkerState(side, side)
+	var cpu int64
+	for b.Loop() {
+		t0 := cpuNow(b)
+		bs := newBands(fam, groups, w, nx, side, RowRange{0, h})
+		for i := range nx * ny {
+			x0, y0 := (i%nx)*side, (i/nx)*side
+			blk := block{x0: x0, y0: y0, w: min(side, w-x0), h: min(side, h-y0)}
+			bd := bs.get(i/nx, ws)
+			ws.planBlock(bd, blk)
+			bs.done(i/nx, bd)
+		}
+		cpu += cpuNow(b) - t0
+	}
+	b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
 }
 
 // studyTrain reads the training points of a sweepbench occurrence file
