@@ -98,14 +98,15 @@ func (s *Study) openGrid() error {
 			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 		}
-		if msg := maskProblem(m.Path); msg != "" {
+		msg, nBands := maskProblem(m.Path)
+		if msg != "" {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
 				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
 		}
-		if n := bandCount(m.Path); n > 1 {
+		if nBands > 1 {
 			stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
-			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s, and give that file)", m.Name, m.Path, n, shellArg(m.Path), shellArg(stem+"_b2.tif")))
+			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s, and give that file)", m.Name, m.Path, nBands, shellArg(m.Path), shellArg(stem+"_b2.tif")))
 		}
 		if i == 0 {
 			s.grid = g
@@ -140,29 +141,25 @@ func shellArg(path string) string {
 	return path
 }
 
-// bandCount returns the number of bands of the raster at path (0 when
-// it cannot be opened: OpenGrid has reported that).
-func bandCount(path string) int {
-	ds, err := extent.OpenRaster(path)
-	if err != nil {
-		return 0
-	}
-	defer ds.Close()
-	return len(ds.Bands())
-}
-
 // maskProblem says how the first band of the raster at path marks cells
 // without data other than by a nodata value (an alpha band, a .msk file
 // or an internal mask, as gdalwarp -dstalpha and some exports write
 // them), or "" when it does not: GDAL's mask flags are then all-valid or
-// nodata.
-func maskProblem(path string) string {
+// nodata. It also returns the raster's number of bands, from the same
+// open (0 when it cannot be opened: OpenGrid has read it, and a later read
+// reports its own error).
+func maskProblem(path string) (string, int) {
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
-		return "" // OpenGrid has read it; a later read reports its own error
+		return "", 0
 	}
 	defer ds.Close()
 	bands := ds.Bands()
+	return maskOf(bands), len(bands)
+}
+
+// maskOf is maskProblem's reading of a raster's bands.
+func maskOf(bands []godal.Band) string {
 	if len(bands) == 0 {
 		return ""
 	}
