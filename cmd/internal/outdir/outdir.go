@@ -444,9 +444,28 @@ func (d *Dir) Abort() {
 	}
 	d.done = true
 	if d.Stage != "" {
-		os.RemoveAll(d.Stage)
+		removeWritten(d.Stage)
 	}
 	d.release()
+}
+
+// removeWritten removes a staging folder that the run's writers may
+// still be creating files in (a signal stops the run while it writes): a
+// plain RemoveAll fails when a file appears after it listed the folder,
+// and left the folder behind. It renames the folder first, so that the
+// writers' next file by path fails, then removes it, again while files
+// opened before the rename still arrive, and the folder itself should a
+// writer make it again (os.MkdirAll of a subfolder).
+func removeWritten(path string) {
+	moved := path + "-removed"
+	os.Rename(path, moved)
+	for i := 0; i < 10; i++ {
+		err := os.RemoveAll(moved)
+		if err2 := os.RemoveAll(path); err == nil && err2 == nil {
+			return
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
 }
 
 func (d *Dir) release() {
@@ -662,16 +681,7 @@ func (s *Staged) remove() {
 		return
 	}
 	s.done = true
-	// Writers may still be creating files in it (a signal): rename it
-	// first, so that their next file by path fails, then remove it,
-	// again while files opened before the rename still arrive.
-	gone := s.Path
-	if os.Rename(s.Path, s.Path+"-removed") == nil {
-		gone = s.Path + "-removed"
-	}
-	for i := 0; i < 10 && os.RemoveAll(gone) != nil; i++ {
-		time.Sleep(10 * time.Millisecond)
-	}
+	removeWritten(s.Path)
 	activeStaged.mu.Lock()
 	activeStaged.list = slices.DeleteFunc(activeStaged.list, func(x *Staged) bool { return x == s })
 	activeStaged.mu.Unlock()

@@ -58,7 +58,7 @@ type Model struct {
 	Path string
 }
 
-// Write creates dir (must not exist or be empty) and writes the scenario. Same seed -> byte-identical
+// Write creates dir (its parent must exist; dir must not exist or be empty) and writes the scenario. Same seed -> byte-identical
 // CSV/YAML and identical raster values.
 //
 // Identity holds on one platform and Go toolchain; the Go specification lets
@@ -75,7 +75,10 @@ func Write(dir string, seed uint64) (Files, error) {
 	case err != nil && !errors.Is(err, fs.ErrNotExist):
 		return Files{}, fmt.Errorf("scenario: directory %s: %w", abs, err)
 	}
-	if err := os.MkdirAll(abs, 0o755); err != nil {
+	// Mkdir, not MkdirAll: the parent must exist. The demo writes into
+	// its run's staging folder, which a signal removes while this runs;
+	// MkdirAll would make that folder again and leave it behind.
+	if err := os.Mkdir(abs, 0o755); err != nil && !errors.Is(err, fs.ErrExist) {
 		return Files{}, fmt.Errorf("scenario: create directory: %w", err)
 	}
 	// GDAL is configured by the program (extent.Configure: its fixed
