@@ -1475,3 +1475,69 @@ func TestChainFewTestPoints(t *testing.T) {
 		t.Fatal("no chain of good through base")
 	}
 }
+
+// TestLongFamilyListed: methods.md writes a run of buffers of a long
+// family as one item with every distance, and the extents short of test
+// records as the base extent's count and the others' range, so that the
+// paragraph stays one a modeller can paste; a family of at most
+// maxListed extents is listed one by one.
+func TestLongFamilyListed(t *testing.T) {
+	var exts []Extent
+	exts = append(exts, Extent{ID: "base", Kind: vocab.KindBase, Params: "file=region.gpkg", AreaKm2: 3.14e6})
+	for i, d := range []int{-40, -20, 20, 40, 60, 80} {
+		exts = append(exts, Extent{ID: fmt.Sprintf("region_%dkm", d), Kind: vocab.KindRegionBuffer, Params: fmt.Sprintf("d_km=%d", d), AreaKm2: 2e6 + float64(i)*1e5})
+	}
+	for i, d := range []int{25, 50, 75, 100, 125} {
+		exts = append(exts, Extent{ID: fmt.Sprintf("points_%dkm", d), Kind: vocab.KindPointBuffer, Params: fmt.Sprintf("d_km=%d; around=training points", d), AreaKm2: 5e5 * float64(i+1)})
+	}
+	exts = append(exts, Extent{ID: "hull", Kind: vocab.KindHull, Params: "convex hull of training points", AreaKm2: 7e6})
+	got := strings.Join(familyList(exts), " | ")
+	want := "base (file=region.gpkg; 3,140,000 km²) | region_-40km to region_80km (6 region buffers, d_km = -40, -20, 20, 40, 60, 80; 2,000,000 to 2,500,000 km²) | " +
+		"points_25km to points_125km (5 point buffers, d_km = 25, 50, 75, 100, 125; around=training points; 500,000 to 2,500,000 km²) | hull (convex hull of training points; 7,000,000 km²)"
+	if got != want {
+		t.Errorf("long family:\n got %s\nwant %s", got, want)
+	}
+	if got := familyList(exts[:maxListed]); len(got) != maxListed {
+		t.Errorf("a family of %d extents is summarized: %q", maxListed, got)
+	}
+
+	s := &Sensitivity{BaseExtent: "base"}
+	var fewer []string
+	for i, e := range exts {
+		s.ScoredExtents = append(s.ScoredExtents, e.ID)
+		s.TestPoints = append(s.TestPoints, 100+i)
+		fewer = append(fewer, fmt.Sprintf("%s %d", e.ID, 100+i))
+	}
+	if got, want := fewerList(s, fewer, false), "base 100; between 101 (region_-40km) and 112 (hull) on the other 12 (each in the report's Extents table)"; got != want {
+		t.Errorf("fewer:\n got %s\nwant %s", got, want)
+	}
+	if got, want := fewerList(s, fewer[:3], true), "base 100, region_-40km 101 and region_-20km 102"; got != want {
+		t.Errorf("short list of fewer: got %s, want %s", got, want)
+	}
+}
+
+// TestReplyAnswersTheQuestion: the reply to a reviewer answers "model or
+// extent?" for AUC with each extent-sensitive model's range, says
+// whether the model order held, says the intervals are not adjusted for
+// the number of extents, and does not blame an undetermined verdict on
+// too few test records (it may be an interval straddling the tolerance).
+func TestReplyAnswersTheQuestion(t *testing.T) {
+	r := loadSample(t)
+	s := analyzed(t, r)
+	reply := reviewerText(r)
+	sp := s.findSpread("auc", "good")
+	checkWords(t, "reply", reply, []string{
+		"The intervals are per extent, not adjusted for the 7 comparisons with the base extent.",
+		fmt.Sprintf("The value of AUC is therefore a property of the model and the extent together: the same predictions of good scored from %s on %s to %s on %s",
+			f3(sp.Min), sp.MinExtent, f3(sp.Max), sp.MaxExtent),
+		"(each on the test records inside that extent)",
+	}, []string{"too few (or the score undefined)"})
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Better == rk.Extents && !strings.Contains(reply, "so their order held on every extent") {
+			t.Errorf("%s better on every extent, the reply does not say the order held:\n%s", rk.Model, reply)
+		}
+	}
+	if rankingOrderText(ModelRanking{Extents: 5, Better: 2, Worse: 1}) != ", so their order depends on the extent" {
+		t.Error("an order reversed beyond noise is not said to depend on the extent")
+	}
+}
