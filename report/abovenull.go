@@ -381,7 +381,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 	if len(cols) == 0 {
 		return nil, nil
 	}
-	head = []string{"extent", "area"}
+	head = []string{"extent", "area (km²)"}
 	for _, an := range cols {
 		head = append(head, an.Model+" − "+an.Null)
 	}
@@ -410,10 +410,11 @@ const aboveNullNote = "Model minus null on each extent, on the test points both 
 	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
 	"\"too few\": fewer than 10 common test points, not read (our cut-off). " +
-	"Each row is a test of one difference against 0; how the gap changes from extent to extent is a description."
+	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
 	"\"below\" when it lies wholly below 0, \"too few\" (not read) on fewer than 10 common test points (our cut-off). " +
+	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

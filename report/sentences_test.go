@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"html/template"
 	"math"
 	"regexp"
 	"slices"
@@ -1539,5 +1540,68 @@ func TestReplyAnswersTheQuestion(t *testing.T) {
 	}
 	if rankingOrderText(ModelRanking{Extents: 5, Better: 2, Worse: 1}) != ", so their order depends on the extent" {
 		t.Error("an order reversed beyond noise is not said to depend on the extent")
+	}
+}
+
+// TestPageSaysWhatItShows: the summary names the base extent, what it is
+// and its test points, so that a newcomer can read "difference from
+// base"; a table longer than foldRows (or summaryFoldRows in the
+// summary) is folded under a line that counts its rows; the nested
+// rings say, where test points enter along a chain, that a ring's
+// "inside" AUC is on the outer extent's test points; and the distance-only
+// null's threshold rows are said to describe its construction.
+func TestPageSaysWhatItShows(t *testing.T) {
+	r := withNull(t)
+	s := analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := string(page)
+	var base *Extent
+	for i := range r.Extents {
+		if r.Extents[i].ID == s.BaseExtent {
+			base = &r.Extents[i]
+		}
+	}
+	entering := false
+	for _, c := range s.Chains {
+		for _, st := range c.Steps {
+			entering = entering || st.Kind == StepTestPoints
+		}
+	}
+	if !entering {
+		t.Fatal("the sample has no chain along which test points enter: the case is not tested")
+	}
+	checkWords(t, "page", p, []string{
+		fmt.Sprintf(`<p class="basenote" id="base-note">The base extent is base (kind %s: %s; %s km²; %d of the %d test points). Every &#34;difference from base&#34; on this page`,
+			base.Kind, base.Params, fmtArea(base.AreaKm2), base.TestPoints, r.PointCounts.Test),
+		"<h3>Nested rings</h3><p>" + template.HTMLEscapeString(chainsEnteringNote) + "</p>",
+		"The rows of " + DistanceNullName + " (distance-only null) are not a model&#39;s",
+		`<th scope="col">area (km²)</th>`,
+	}, nil)
+	var long, short int
+	for _, m := range regexp.MustCompile(`(<details class="fold"><summary>Show the table \((\d+) rows; click a column header to sort\)</summary>)?<div class="tablewrap"><table class="sortable" id="([a-z-]+)">`).FindAllStringSubmatch(p, -1) {
+		rows := strings.Count(p[strings.Index(p, `id="`+m[3]+`"`):][:strings.Index(p[strings.Index(p, `id="`+m[3]+`"`):], "</table>")], "<tr><td")
+		limit := foldRows
+		if m[3] == "tbl-above-null-summary" {
+			limit = summaryFoldRows
+		}
+		switch folded := m[1] != ""; {
+		case folded && strconv.Itoa(rows) != m[2]:
+			t.Errorf("table %s: summary counts %s rows, table has %d", m[3], m[2], rows)
+		case folded != (rows > limit):
+			t.Errorf("table %s of %d rows: folded %v, limit %d", m[3], rows, folded, limit)
+		case folded:
+			long++
+		default:
+			short++
+		}
+	}
+	if long == 0 || short == 0 {
+		t.Errorf("%d folded and %d open tables: the sample should have both", long, short)
+	}
+	if strings.Count(p, "<details") != strings.Count(p, "</details>") {
+		t.Error("unbalanced details elements")
 	}
 }
