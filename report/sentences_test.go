@@ -1245,7 +1245,16 @@ func TestExplorerPartialROCLabel(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	checkWords(t, "page", string(page), []string{`(full sample; the published bootstrap's 2.5th to 97.5th percentile `}, []string{"half-size"})
+	checkWords(t, "page", string(page), []string{`(full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": "`,
+		`"bootstrap":"the published bootstrap"`}, []string{"half-size", "the published bootstrap's"})
+	// Another --fraction is not the published bootstrap: the explorer
+	// called it that whatever the fraction.
+	r.Settings.ResampleFraction = 0.3
+	page, err = htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page at fraction 0.3", string(page), []string{`"bootstrap":"a bootstrap like the published one (which draws 50%)"`}, []string{`"bootstrap":"the published bootstrap"`})
 }
 
 // TestBootstrapNamedByFraction: the partial ROC bootstrap is "the
