@@ -191,6 +191,11 @@ type pageView struct {
 	// reader who meets "difference from base" first in the headline.
 	BaseNote string
 	Verdicts []badge
+	// E lists the partial ROC's allowed omissions ("0.05 and 0.1"), ""
+	// without partial ROC; HasDistanceNull says whether the run scored
+	// the distance-only null. Both for the Terms section.
+	E               string
+	HasDistanceNull bool
 	// AboveNullSummary is nil without a null model.
 	AboveNullSummary *notedTable
 	// Warnings counts RunWarnings and AnalysisWarnings.
@@ -260,6 +265,10 @@ func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i i
 		v.AboveNullSummary = &notedTable{Note: aboveNullSummaryNote, Table: tb}
 	}
 	v.BaseNote = baseNote(r)
+	v.E = fmtList(r.Settings.E, "")
+	for _, m := range r.Models {
+		v.HasDistanceNull = v.HasDistanceNull || (m.IsNull() && m.NullKind == NullDistance)
+	}
 	for i, rf := range figs {
 		v.Figures = append(v.Figures, figureView{
 			Number: i + 1, Name: rf.fig.Name, Title: rf.fig.Title, Caption: rf.fig.Caption, Note: rf.fig.Note,

@@ -319,6 +319,8 @@ func formedPartialROC(pr PartialROC) bool {
 type scoresView struct {
 	Iterations      int
 	ResamplePercent string
+	// BootstrapNote is bootstrapNote of the settings.
+	BootstrapNote string
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
 	NullNote   string
@@ -353,7 +355,8 @@ func nullThresholdNote(r *Results) string {
 // and rule).
 func scoresSection(r *Results) scoresView {
 	st := r.Settings
-	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r)}
+	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
+		BootstrapNote: bootstrapNote(st)}
 	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
@@ -471,8 +474,8 @@ func settingsSection(r *Results) settingsView {
 		{tc("ecoregion minimum points"), tc(strconv.Itoa(st.EcoregionMinPoints))},
 		{tc("ecoregion field"), tc(st.EcoregionField)},
 		{tc("partial ROC E"), tc(fl(st.E))},
-		{tc("bootstrap iterations (published partial ROC bootstrap)"), tc(strconv.Itoa(st.Iterations))},
-		{tc("resample fraction (published partial ROC bootstrap)"), tc(fmtG(st.ResampleFraction))},
+		{tc("bootstrap iterations (partial ROC bootstrap, Peterson et al. 2008)"), tc(strconv.Itoa(st.Iterations))},
+		{tc("resample fraction (partial ROC bootstrap; the published one draws 0.5)"), tc(fmtG(st.ResampleFraction))},
 		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
 		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
 			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},

@@ -1614,3 +1614,42 @@ func TestPageSaysWhatItShows(t *testing.T) {
 		t.Error("unbalanced details elements")
 	}
 }
+
+// TestTermsSection: the page defines the words a newcomer meets (AUC,
+// partial ROC and E, omission rate, minimum training presence, binomial
+// test, Boyce index, the verdicts, the paired differences), each
+// published method with its citation, and the distance-only null only
+// when the run scored it.
+func TestTermsSection(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		r    *Results
+		null bool
+	}{{"with null", withNull(t), true}, {"without null", loadSample(t), false}} {
+		t.Run(c.name, func(t *testing.T) {
+			analyzed(t, c.r)
+			page, err := htmlPage(c.r, nil, "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			p := string(page)
+			i := strings.Index(p, `<section id="terms">`)
+			if i < 0 || !strings.Contains(p, `<a href="#terms">Terms</a>`) {
+				t.Fatal("no Terms section in the page or its contents")
+			}
+			terms := p[i : i+strings.Index(p[i:], "</section>")]
+			checkWords(t, "terms", terms, []string{
+				"<dt>AUC</dt><dd>", "(Hanley &amp; McNeil 1982)",
+				"<dt>partial ROC ratio, E</dt>", "(Peterson et al. 2008)", "(0.05 and 0.1 here)",
+				"<dt>omission rate</dt>", "<dt>minimum training presence, 10th percentile training presence</dt>",
+				"<dt>binomial test</dt>", "(Anderson et al. 2003)",
+				"<dt>Boyce index</dt>", "(Boyce et al. 2002; Hirzel et al. 2006)",
+				"<dt>robust, extent-sensitive, undetermined</dt>", "tolerances we chose",
+				"not adjusted for the number of extents", "<dt>descriptions</dt>",
+			}, nil)
+			if got := strings.Contains(terms, "<dt>distance-only null</dt>"); got != c.null {
+				t.Errorf("distance-only null defined: %v, want %v", got, c.null)
+			}
+		})
+	}
+}
