@@ -164,7 +164,7 @@ func analysisSection(r *Results) analysisView {
 		for i, id := range o.IDs {
 			ids[i] = strconv.Itoa(id)
 		}
-		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(strings.Join(ids, ", "))})
+		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(idList(ids))})
 	}
 	v.Omitted = table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 	return v
@@ -210,6 +210,20 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 	t := table("tbl-ranking", head, rows)
 	v.Ranking = &t
 	return v
+}
+
+// maxIDs is the most ids of missed test points a cell of the omitted
+// table lists: a null or a poor model can miss hundreds, and the cell
+// then fills screens.
+const maxIDs = 30
+
+// idList joins ids, the first maxIDs of a longer list followed by how
+// many more there are and where every one is listed.
+func idList(ids []string) string {
+	if len(ids) <= maxIDs {
+		return strings.Join(ids, ", ")
+	}
+	return fmt.Sprintf("%s and %d more (results.json, omissions, lists every one)", strings.Join(ids[:maxIDs], ", "), len(ids)-maxIDs)
 }
 
 // chainsEnteringNote is chainsView.Note.

@@ -1653,3 +1653,20 @@ func TestTermsSection(t *testing.T) {
 		})
 	}
 }
+
+// TestIDListCapped: a cell of the omitted table lists at most maxIDs ids
+// and says how many more there are and where they are; a null at 60
+// extents missed all 500 test points and its cell ran to screens.
+func TestIDListCapped(t *testing.T) {
+	var ids []string
+	for i := 1; i <= maxIDs+15; i++ {
+		ids = append(ids, strconv.Itoa(i))
+	}
+	got := idList(ids)
+	if !strings.HasPrefix(got, "1, 2, 3,") || !strings.HasSuffix(got, ", 30 and 15 more (results.json, omissions, lists every one)") {
+		t.Errorf("idList of %d ids: %s", len(ids), got)
+	}
+	if got := idList(ids[:maxIDs]); got != strings.Join(ids[:maxIDs], ", ") {
+		t.Errorf("idList of %d ids is shortened: %s", maxIDs, got)
+	}
+}
