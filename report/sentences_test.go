@@ -1670,3 +1670,18 @@ func TestIDListCapped(t *testing.T) {
 		t.Errorf("idList of %d ids is shortened: %s", maxIDs, got)
 	}
 }
+
+// TestExtentListCapped: a cell naming extents names at most
+// maxExtentNames, after their count.
+func TestExtentListCapped(t *testing.T) {
+	var ids []string
+	for i := 0; i < maxExtentNames+3; i++ {
+		ids = append(ids, fmt.Sprintf("e%d", i))
+	}
+	if got, want := extentList(ids), fmt.Sprintf("%d extents: e0, e1, e2, e3, e4, e5, e6, e7, …", len(ids)); got != want {
+		t.Errorf("extentList: %s, want %s", got, want)
+	}
+	if got := extentList(ids[:2]); got != "e0, e1" {
+		t.Errorf("extentList of two: %s", got)
+	}
+}
