@@ -145,6 +145,9 @@ func analysisSection(r *Results) analysisView {
 	ind := s.Independence
 	v.IndependenceSentence = ind.Sentence
 	if ind.Defined {
+		v.IndependenceSentence += fmt.Sprintf(" The distance of %g cell widths and the %s level are our cut-offs for a quick check, not a published test.", NearCells, pct(NearShareWarn))
+	}
+	if ind.Defined {
 		v.Independence = &htmlTable{ID: "tbl-independence", Caption: "Distance from each test point to the nearest training point (km)",
 			Head: []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
 			Rows: [][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}}}
