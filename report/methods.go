@@ -176,7 +176,13 @@ const minBufferRun = 5
 // to region_300 (29 region buffers, d_km = -280, -260, …, 300; 1,630,000
 // to 5,300,000 km²)", every distance kept.
 func familyList(exts []Extent) []string {
-	one := func(e Extent) string { return fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2)) }
+	one := func(e Extent) string {
+		if e.Kind == vocab.KindBase {
+			// Name the reference where the reader first meets it.
+			return fmt.Sprintf("%s (the base extent, the study region as given: %s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2))
+		}
+		return fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2))
+	}
 	var out []string
 	for i := 0; i < len(exts); {
 		j := i + 1

@@ -1502,7 +1502,7 @@ func TestLongFamilyListed(t *testing.T) {
 	}
 	exts = append(exts, Extent{ID: "hull", Kind: vocab.KindHull, Params: "convex hull of training points", AreaKm2: 7e6})
 	got := strings.Join(familyList(exts), " | ")
-	want := "base (file=region.gpkg; 3,140,000 km²) | region_-40km to region_80km (6 region buffers, d_km = -40, -20, 20, 40, 60, 80; 2,000,000 to 2,500,000 km²) | " +
+	want := "base (the base extent, the study region as given: file=region.gpkg; 3,140,000 km²) | region_-40km to region_80km (6 region buffers, d_km = -40, -20, 20, 40, 60, 80; 2,000,000 to 2,500,000 km²) | " +
 		"points_25km to points_125km (5 point buffers, d_km = 25, 50, 75, 100, 125; around=training points; 500,000 to 2,500,000 km²) | hull (convex hull of training points; 7,000,000 km²)"
 	if got != want {
 		t.Errorf("long family:\n got %s\nwant %s", got, want)
