@@ -190,7 +190,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
