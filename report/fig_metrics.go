@@ -307,6 +307,11 @@ func metricsCaption(r *Results) string {
 			"the full-sample ratio is in the tables. ",
 			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
 	}
+	if st.PairedResamples >= 2 || st.Iterations >= 2 {
+		// Extents share their test points: bars that overlap say nothing
+		// about a difference, which is paired.
+		c += "Each bar is for its own extent; the extents share their test records, so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars. "
+	}
 	c += "Omission and predicted area at a threshold have no bar. The predicted area has no sampling error (the threshold comes from the training records alone); " +
 		"the omission rate does vary with the test records, and its paired differences with their intervals are under Analysis. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +

@@ -1685,3 +1685,14 @@ func TestExtentListCapped(t *testing.T) {
 		t.Errorf("extentList of two: %s", got)
 	}
 }
+
+// TestMetricsCaptionBarsNotPaired: the scores figure's bars are per
+// extent, and the caption says a difference between extents is read from
+// the paired difference, not from overlapping bars (the extents share
+// their test points).
+func TestMetricsCaptionBarsNotPaired(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "caption", metricsCaption(r), []string{"so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars"}, nil)
+	r.Settings.PairedResamples, r.Settings.Iterations = 0, 1
+	checkWords(t, "caption without bars", metricsCaption(r), nil, []string{"overlapping bars"})
+}
