@@ -294,6 +294,14 @@ func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
 		"every score uses the test records inside that extent (counts in the Extents table). "
+	if s := r.Sensitivity; s != nil && len(s.ScoredExtents) > 1 {
+		// Where the reference sits on the area axis.
+		for _, e := range r.Extents {
+			if e.ID == s.BaseExtent {
+				c += fmt.Sprintf("%s, whose scores the Analysis takes differences from, is at %s km². ", upperFirst(referenceText(s, "the base extent, %s")), fmtArea(e.AreaKm2))
+			}
+		}
+	}
 	if st.PairedResamples >= 2 {
 		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d full-size paired resamples of the test records inside the extent, "+
 			"which estimates the same uncertainty as the AUC's standard error (Scores table). ", st.PairedResamples)

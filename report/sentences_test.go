@@ -1692,7 +1692,8 @@ func TestExtentListCapped(t *testing.T) {
 // their test points).
 func TestMetricsCaptionBarsNotPaired(t *testing.T) {
 	r := analyzedSample(t)
-	checkWords(t, "caption", metricsCaption(r), []string{"so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars"}, nil)
+	checkWords(t, "caption", metricsCaption(r), []string{"so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars",
+		"The base extent, base, whose scores the Analysis takes differences from, is at 40,600 km². "}, nil)
 	r.Settings.PairedResamples, r.Settings.Iterations = 0, 1
 	checkWords(t, "caption without bars", metricsCaption(r), nil, []string{"overlapping bars"})
 }
