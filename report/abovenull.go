@@ -190,7 +190,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
@@ -381,7 +381,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 	if len(cols) == 0 {
 		return nil, nil
 	}
-	head = []string{"extent", "area"}
+	head = []string{"extent", "area (km²)"}
 	for _, an := range cols {
 		head = append(head, an.Model+" − "+an.Null)
 	}
@@ -410,10 +410,11 @@ const aboveNullNote = "Model minus null on each extent, on the test points both 
 	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
 	"\"too few\": fewer than 10 common test points, not read (our cut-off). " +
-	"Each row is a test of one difference against 0; how the gap changes from extent to extent is a description."
+	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
 	"\"below\" when it lies wholly below 0, \"too few\" (not read) on fewer than 10 common test points (our cut-off). " +
+	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -83,7 +83,8 @@ func TestAboveNullReadings(t *testing.T) {
 			t.Errorf("%s: reading %s, want %s", g.Extent, g.Reading, want[g.Extent])
 		}
 	}
-	if !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is above") {
+	// "beyond noise", as the headline and the "below" sentence say it.
+	if !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is above "+DistanceNullName+" (distance-only null) beyond noise: +0.100") {
 		t.Errorf("sentence: %s", an.Sentence)
 	}
 	if !strings.Contains(r.Sensitivity.Headline, model+" is above "+DistanceNullName+" beyond noise on "+base) {

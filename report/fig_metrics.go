@@ -294,6 +294,14 @@ func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
 		"every score uses the test records inside that extent (counts in the Extents table). "
+	if s := r.Sensitivity; s != nil && len(s.ScoredExtents) > 1 {
+		// Where the reference sits on the area axis.
+		for _, e := range r.Extents {
+			if e.ID == s.BaseExtent {
+				c += fmt.Sprintf("%s, whose scores the Analysis takes differences from, is at %s km². ", upperFirst(referenceText(s, "the base extent, %s")), fmtArea(e.AreaKm2))
+			}
+		}
+	}
 	if st.PairedResamples >= 2 {
 		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d full-size paired resamples of the test records inside the extent, "+
 			"which estimates the same uncertainty as the AUC's standard error (Scores table). ", st.PairedResamples)
@@ -306,6 +314,11 @@ func metricsCaption(r *Results) string {
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",
 			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
+	}
+	if st.PairedResamples >= 2 || st.Iterations >= 2 {
+		// Extents share their test points: bars that overlap say nothing
+		// about a difference, which is paired.
+		c += "Each bar is for its own extent; the extents share their test records, so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars. "
 	}
 	c += "Omission and predicted area at a threshold have no bar. The predicted area has no sampling error (the threshold comes from the training records alone); " +
 		"the omission rate does vary with the test records, and its paired differences with their intervals are under Analysis. " +

@@ -11,6 +11,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot/vg"
+
+	"areasweep/extent/vocab"
 )
 
 // pageFiles are the page template and the style and scripts it inlines:
@@ -85,6 +87,28 @@ type htmlTable struct {
 	ID, Caption string
 	Head        []string
 	Rows        [][]cell
+	// foldAt is the most rows shown open; a longer table is folded
+	// under a summary line (Fold). 0 means foldRows.
+	foldAt int
+}
+
+// foldRows is the most rows a table shows before it is folded: at 60
+// extents the tables run to hundreds of rows (one per extent at least),
+// and the page's sentences and figures disappear between them. A table
+// of the demo's 13 extents and three models (39 rows) stays open.
+const foldRows = 40
+
+// Fold is the summary line of a table folded into a <details> element,
+// or "" for a table shown open.
+func (t htmlTable) Fold() string {
+	at := t.foldAt
+	if at == 0 {
+		at = foldRows
+	}
+	if len(t.Rows) <= at {
+		return ""
+	}
+	return fmt.Sprintf("Show the table (%d rows; click a column header to sort)", len(t.Rows))
 }
 
 // Body renders the rows of the table's body: per cell a td with its class
@@ -164,7 +188,15 @@ type pageView struct {
 	Models        int
 	ScoredExtents int
 	Headline      string
-	Verdicts      []badge
+	// BaseNote names the extent every difference is taken from, for a
+	// reader who meets "difference from base" first in the headline.
+	BaseNote string
+	Verdicts []badge
+	// E lists the partial ROC's allowed omissions ("0.05 and 0.1"), ""
+	// without partial ROC; HasDistanceNull says whether the run scored
+	// the distance-only null. Both for the Terms section.
+	E               string
+	HasDistanceNull bool
 	// AboveNullSummary is nil without a null model.
 	AboveNullSummary *notedTable
 	// Warnings counts RunWarnings and AnalysisWarnings.
@@ -229,7 +261,14 @@ func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i i
 		v.Verdicts = append(v.Verdicts, verdictBadge(vd.Verdict, vd.Sentence))
 	}
 	if head, rows := aboveNullSummary(r); len(rows) > 0 {
-		v.AboveNullSummary = &notedTable{Note: aboveNullSummaryNote, Table: table("tbl-above-null-summary", head, rows)}
+		tb := table("tbl-above-null-summary", head, rows)
+		tb.foldAt = summaryFoldRows
+		v.AboveNullSummary = &notedTable{Note: aboveNullSummaryNote, Table: tb}
+	}
+	v.BaseNote = baseNote(r)
+	v.E = fmtList(r.Settings.E, "")
+	for _, m := range r.Models {
+		v.HasDistanceNull = v.HasDistanceNull || (m.IsNull() && m.NullKind == NullDistance)
 	}
 	for i, rf := range figs {
 		v.Figures = append(v.Figures, figureView{
@@ -240,6 +279,42 @@ func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i i
 		})
 	}
 	return v, nil
+}
+
+// summaryFoldRows is the most rows a table of the summary shows open:
+// the summary should fit a screen or two above the figures.
+const summaryFoldRows = 20
+
+// baseNote says which extent the differences are taken from, what it is
+// and how many test points it holds: "The base extent is base (the
+// study region as given, file=region.gpkg; 1,230,000 km²; 90 of the 90
+// test points).
+// Every difference from base on this page is ...". It is "" when no
+// extent was scored.
+func baseNote(r *Results) string {
+	s := r.Sensitivity
+	if s == nil || len(s.ScoredExtents) == 0 {
+		return ""
+	}
+	var e *Extent
+	for i := range r.Extents {
+		if r.Extents[i].ID == s.BaseExtent {
+			e = &r.Extents[i]
+		}
+	}
+	if e == nil {
+		return ""
+	}
+	kind := "kind " + string(e.Kind) + ": "
+	if e.Kind == vocab.KindBase {
+		kind = "the study region as given, "
+	}
+	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test points", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test)
+	if len(s.ScoredExtents) == 1 {
+		return fmt.Sprintf("The one scored extent is %s (%s).", e.ID, what)
+	}
+	return fmt.Sprintf("%s (%s). Every \"difference from %s\" on this page is a score on another extent minus the score on %s, on the test points both hold; the Extents section lists every extent.",
+		upperFirst(referenceText(s, "the base extent is %s")), what, e.ID, e.ID)
 }
 
 // svgMarker is the text the page template gets in place of the i-th

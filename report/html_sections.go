@@ -30,6 +30,8 @@ type analysisView struct {
 	Truncation    []string
 	AboveNull     *aboveNullView
 	// IndependenceSentence is always shown; Independence only when defined.
+	// NullNote is scoresView.NullNote, for the omitted test points.
+	NullNote             string
 	IndependenceSentence string
 	Independence         *htmlTable
 	SortingBias          *notedTable
@@ -49,6 +51,9 @@ type decompositionView struct {
 }
 
 type chainsView struct {
+	// Note explains, when test points enter along some chain, that a
+	// ring's inner AUC is on the outer extent's test points.
+	Note          string
 	Sentences     []string
 	Steps, Slopes htmlTable
 }
@@ -65,7 +70,7 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, NullNote: nullThresholdNote(r)}
 	if s.BaseExtent != vocab.BaseID {
 		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
 		if v.StandIn == "" {
@@ -132,13 +137,16 @@ func analysisSection(r *Results) analysisView {
 		for _, x := range s.AboveNull {
 			an.Sentences = append(an.Sentences, x.Sentence)
 		}
-		an.Table = table("tbl-above-null", []string{"metric", "model", "null", "extent", "area", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
+		an.Table = table("tbl-above-null", []string{"metric", "model", "null", "extent", "area (km²)", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
 		v.AboveNull = an
 	}
 
 	// Independence.
 	ind := s.Independence
 	v.IndependenceSentence = ind.Sentence
+	if ind.Defined {
+		v.IndependenceSentence += fmt.Sprintf(" The distance of %g cell widths and the %s level are our cut-offs for a quick check, not a published test.", NearCells, pct(NearShareWarn))
+	}
 	if ind.Defined {
 		v.Independence = &htmlTable{ID: "tbl-independence", Caption: "Distance from each test point to the nearest training point (km)",
 			Head: []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
@@ -147,7 +155,7 @@ func analysisSection(r *Results) analysisView {
 	if sb := sortingBiasRows(r); len(sb) > 0 {
 		v.SortingBias = &notedTable{Note: sortingBiasNote, Table: htmlTable{ID: "tbl-sorting-bias",
 			Caption: "Distance to the nearest training point: test points against the extent's cells",
-			Head: []string{"extent", "area",
+			Head: []string{"extent", "area (km²)",
 				"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"},
 			Rows: sb}}
 	}
@@ -159,7 +167,7 @@ func analysisSection(r *Results) analysisView {
 		for i, id := range o.IDs {
 			ids[i] = strconv.Itoa(id)
 		}
-		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(strings.Join(ids, ", "))})
+		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(idList(ids))})
 	}
 	v.Omitted = table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 	return v
@@ -180,7 +188,7 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 			row = append(row, dash, dash, dash)
 		}
 		row = append(row, defNum(d.KendallW, d.KendallWDefined, 3))
-		row = append(row, tc(d.BaseExtent), tc(strings.Join(d.DiffersFromBase, ", ")))
+		row = append(row, tc(d.BaseExtent), tc(extentList(d.DiffersFromBase)))
 		rows = append(rows, row)
 	}
 	v := &decompositionView{Table: table("tbl-decomposition", []string{"metric", "extents", "extent %", "model %", "non-additive %", "Kendall's W", "base extent", "order differs on"}, rows)}
@@ -207,6 +215,39 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 	return v
 }
 
+// maxExtentNames is the most extents a cell names.
+const maxExtentNames = 8
+
+// extentList joins extent ids for a table cell; a longer list than
+// maxExtentNames gives its count and first names: at 60 extents the
+// order of the models differed from the base extent's on 50 of them.
+func extentList(ids []string) string {
+	if len(ids) <= maxExtentNames {
+		return strings.Join(ids, ", ")
+	}
+	return fmt.Sprintf("%d extents: %s, …", len(ids), strings.Join(ids[:maxExtentNames], ", "))
+}
+
+// maxIDs is the most ids of missed test points a cell of the omitted
+// table lists: a null or a poor model can miss hundreds, and the cell
+// then fills screens.
+const maxIDs = 30
+
+// idList joins ids, the first maxIDs of a longer list followed by how
+// many more there are and where every one is listed.
+func idList(ids []string) string {
+	if len(ids) <= maxIDs {
+		return strings.Join(ids, ", ")
+	}
+	return fmt.Sprintf("%s and %d more (results.json, omissions, lists every one)", strings.Join(ids[:maxIDs], ", "), len(ids)-maxIDs)
+}
+
+// chainsEnteringNote is chainsView.Note.
+const chainsEnteringNote = "Test points enter along some chains (rows \"test points entering\" in the table). " +
+	"A ring's AUC is compared with the AUC inside the inner extent on the test points of the outer one, " +
+	"so where test points have entered, the AUC \"inside\" an extent in a sentence differs from that extent's own AUC in the Scores table; " +
+	"the step of entering test points accounts for the difference."
+
 // chainsSection is the nested rings' sentences, steps and slopes; nil
 // without chains.
 func chainsSection(s *Sensitivity) *chainsView {
@@ -218,6 +259,9 @@ func chainsSection(s *Sensitivity) *chainsView {
 	for _, c := range s.Chains {
 		v.Sentences = append(v.Sentences, c.Sentence)
 		for _, st := range c.Steps {
+			if st.Kind == StepTestPoints {
+				v.Note = chainsEnteringNote
+			}
 			what := "ring " + st.Outer + " − " + st.Inner
 			if st.Kind == StepTestPoints {
 				what = "test points entering with " + st.Outer
@@ -305,9 +349,34 @@ func formedPartialROC(pr PartialROC) bool {
 type scoresView struct {
 	Iterations      int
 	ResamplePercent string
-	Main            htmlTable
-	PartialROC      htmlTable
-	Thresholds      htmlTable
+	// BootstrapNote is bootstrapNote of the settings.
+	BootstrapNote string
+	// NullNote, when a distance-only null was scored, says why its
+	// threshold rows omit nearly every test record.
+	NullNote   string
+	Main       htmlTable
+	PartialROC htmlTable
+	Thresholds htmlTable
+}
+
+// nullThresholdNote says, when a distance-only null was scored, that its
+// threshold rows describe the null's construction, not a model: its value
+// is minus the distance in metres to the nearest training record, so the
+// cuts taken from the training records lie within about a cell of one and
+// every test record farther than that from all of them is omitted.
+func nullThresholdNote(r *Results) string {
+	var names []string
+	for _, m := range r.Models {
+		if m.IsNull() && m.NullKind == NullDistance {
+			names = append(names, m.Name)
+		}
+	}
+	if len(names) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("The rows of %s (distance-only null) are not a model's: its value is minus the distance in metres to the nearest training record, "+
+		"so a cut taken from the training records lies within about a cell of one, and every test record farther than that from all of them is missed. "+
+		"Its omission rates describe how the null is built, not how well it predicts.", joinList(names))
 }
 
 // scoresSection makes the scores as three long tables: the scores with
@@ -316,7 +385,8 @@ type scoresView struct {
 // and rule).
 func scoresSection(r *Results) scoresView {
 	st := r.Settings
-	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction)}
+	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
+		BootstrapNote: bootstrapNote(st)}
 	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
@@ -434,8 +504,8 @@ func settingsSection(r *Results) settingsView {
 		{tc("ecoregion minimum points"), tc(strconv.Itoa(st.EcoregionMinPoints))},
 		{tc("ecoregion field"), tc(st.EcoregionField)},
 		{tc("partial ROC E"), tc(fl(st.E))},
-		{tc("bootstrap iterations (published partial ROC bootstrap)"), tc(strconv.Itoa(st.Iterations))},
-		{tc("resample fraction (published partial ROC bootstrap)"), tc(fmtG(st.ResampleFraction))},
+		{tc("bootstrap iterations (partial ROC bootstrap, Peterson et al. 2008)"), tc(strconv.Itoa(st.Iterations))},
+		{tc("resample fraction (partial ROC bootstrap; the published one draws 0.5)"), tc(fmtG(st.ResampleFraction))},
 		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
 		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
 			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},

@@ -46,24 +46,15 @@ func methodsText(r *Results) string {
 	b.WriteString("## Methods\n\n")
 
 	models := s.ModelNames
-	var fam []string
-	lo, hi := 0.0, 0.0
-	first := true
+	var ok []Extent
 	for _, e := range r.Extents {
-		if e.Status != vocab.StatusOK {
-			continue
+		if e.Status == vocab.StatusOK {
+			ok = append(ok, e)
 		}
-		fam = append(fam, fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2)))
-		if first || e.AreaKm2 < lo {
-			lo = e.AreaKm2
-		}
-		if first || e.AreaKm2 > hi {
-			hi = e.AreaKm2
-		}
-		first = false
 	}
+	fam := familyList(ok)
 	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), plural(len(models)), joinList(models), len(fam), plural(len(fam)), sw, joinList(fam))
+		len(models), plural(len(models)), joinList(models), len(ok), plural(len(ok)), sw, joinList(fam))
 	if len(s.SkippedExtents) > 0 {
 		var sk []string
 		for _, e := range s.SkippedExtents {
@@ -111,7 +102,7 @@ func methodsText(r *Results) string {
 		if all > 0 {
 			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
 		}
-		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, joinList(fewer))
+		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, fewerList(s, fewer, all > 0))
 	}
 	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
@@ -166,6 +157,129 @@ func methodsText(r *Results) string {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
+}
+
+// maxListed is the longest list of extents methods.md writes out one by
+// one; a longer one is summarized (familyList, fewerList), since a
+// paragraph naming 60 extents is one nobody pastes. The Extents table of
+// the report and extents.csv list every extent.
+const maxListed = 12
+
+// minBufferRun is the shortest run of buffers familyList writes as one
+// item.
+const minBufferRun = 5
+
+// familyList is the methods paragraph's list of the scored extents, each
+// "id (params; area km²)". In a family of more than maxListed extents, a
+// run of at least minBufferRun consecutive extents of one kind whose
+// params differ only in their d_km is written as one item: "region_m280
+// to region_300 (29 region buffers, d_km = -280, -260, …, 300; 1,630,000
+// to 5,300,000 km²)", every distance kept.
+func familyList(exts []Extent) []string {
+	one := func(e Extent) string {
+		if e.Kind == vocab.KindBase {
+			// Name the reference where the reader first meets it.
+			return fmt.Sprintf("%s (the base extent, the study region as given: %s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2))
+		}
+		return fmt.Sprintf("%s (%s; %s km²)", e.ID, e.Params, fmtArea(e.AreaKm2))
+	}
+	var out []string
+	for i := 0; i < len(exts); {
+		j := i + 1
+		d0, rest0, ok0 := bufferParams(exts[i].Params)
+		dist := []string{d0}
+		for ; ok0 && j < len(exts) && exts[j].Kind == exts[i].Kind; j++ {
+			d, rest, ok := bufferParams(exts[j].Params)
+			if !ok || rest != rest0 {
+				break
+			}
+			dist = append(dist, d)
+		}
+		if len(exts) <= maxListed || !ok0 || j-i < minBufferRun {
+			out = append(out, one(exts[i]))
+			i++
+			continue
+		}
+		lo, hi := exts[i].AreaKm2, exts[i].AreaKm2
+		for _, e := range exts[i:j] {
+			lo, hi = min(lo, e.AreaKm2), max(hi, e.AreaKm2)
+		}
+		if rest0 != "" {
+			rest0 = "; " + rest0
+		}
+		out = append(out, fmt.Sprintf("%s to %s (%d %s, d_km = %s%s; %s to %s km²)", exts[i].ID, exts[j-1].ID, j-i,
+			kindNoun(exts[i].Kind), strings.Join(dist, ", "), rest0, fmtArea(lo), fmtArea(hi)))
+		i = j
+	}
+	return out
+}
+
+// kindNoun names extents of kind k in the plural: "region buffers".
+func kindNoun(k vocab.Kind) string {
+	switch k {
+	case vocab.KindHull:
+		return "buffered hulls"
+	case vocab.KindRegionBuffer:
+		return "region buffers"
+	case vocab.KindPointBuffer:
+		return "point buffers"
+	}
+	return "extents of kind " + string(k)
+}
+
+// bufferParams splits an extent's params ("d_km=25; around=training
+// points") into its distance and the rest, or ok false when they hold no
+// d_km.
+func bufferParams(params string) (d, rest string, ok bool) {
+	var others []string
+	for _, p := range strings.Split(params, "; ") {
+		if v, found := strings.CutPrefix(p, "d_km="); found && !ok {
+			d, ok = v, true
+			continue
+		}
+		others = append(others, p)
+	}
+	return d, strings.Join(others, "; "), ok
+}
+
+// fewerList is the list of extents holding fewer than all test records,
+// each "id n"; longer than maxListed, it names the base extent's count
+// and the range of the others instead ("base 418; between 116 on
+// points_25km and 499 on the other 53").
+func fewerList(s *Sensitivity, fewer []string, someHoldAll bool) string {
+	if len(fewer) <= maxListed {
+		return joinList(fewer)
+	}
+	var out []string
+	lo, hi := -1, -1
+	loID, hiID := "", ""
+	others := 0
+	for i, id := range s.ScoredExtents {
+		if i >= len(s.TestPoints) {
+			continue
+		}
+		n := s.TestPoints[i]
+		if !slices.Contains(fewer, fmt.Sprintf("%s %d", id, n)) {
+			continue
+		}
+		if id == s.BaseExtent {
+			out = append(out, fmt.Sprintf("%s %d", id, n))
+			continue
+		}
+		others++
+		if lo < 0 || n < lo {
+			lo, loID = n, id
+		}
+		if n > hi {
+			hi, hiID = n, id
+		}
+	}
+	what := "the other"
+	if !someHoldAll && len(out) == 0 {
+		what = "the"
+	}
+	out = append(out, fmt.Sprintf("between %d (%s) and %d (%s) on %s %d (each in the report's Extents table)", lo, loID, hi, hiID, what, others))
+	return strings.Join(out, "; ")
 }
 
 // referenceText names the extent every difference is taken from: the
@@ -398,6 +512,11 @@ func reviewerText(r *Results) string {
 	if n != 1 {
 		fmt.Fprintf(&b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
 			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
+		if n > 2 {
+			// One interval wholly outside makes a score extent-sensitive:
+			// with many extents that is easier to reach by chance.
+			fmt.Fprintf(&b, "The intervals are per extent, not adjusted for the %d comparisons with %s. ", n-1, referenceWord(s))
+		}
 	}
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
@@ -435,13 +554,16 @@ func reviewerText(r *Results) string {
 		fmt.Fprintf(&b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
 	}
 	if len(undetermined) > 0 {
-		fmt.Fprintf(&b, "For %s our test records are too few (or the score undefined) to tell. ", joinList(undetermined))
+		// Undetermined: an interval straddles the tolerance, or a score
+		// is undefined or has too few common test records somewhere.
+		fmt.Fprintf(&b, "For %s the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent). ", joinList(undetermined))
 	}
+	b.WriteString(aucAnswer(s))
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse)
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rankingOrderText(rk))
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -455,6 +577,63 @@ func reviewerText(r *Results) string {
 		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()
+}
+
+// aucAnswer answers the reviewer's question for AUC in one sentence:
+// when AUC is extent-sensitive for some model, its value belongs to the
+// model and the extent together, with each such model's range and where
+// (point estimates: a description); when it is robust for every model,
+// the extents chosen did not move it beyond the tolerance; otherwise "".
+func aucAnswer(s *Sensitivity) string {
+	var v *Verdict
+	for i := range s.Verdicts {
+		if s.Verdicts[i].Metric == "auc" {
+			v = &s.Verdicts[i]
+		}
+	}
+	if v == nil || len(s.ScoredExtents) < 2 {
+		return ""
+	}
+	switch v.Verdict {
+	case JudgementRobust:
+		return "Within our tolerance, the AUC did not depend on which of these extents it was computed on. "
+	case JudgementSensitive:
+		var parts []string
+		for _, m := range s.ModelNames {
+			mv, sp := s.findModelVerdict("auc", m), s.findSpread("auc", m)
+			if mv == nil || sp == nil || mv.Verdict != JudgementSensitive || sp.N < 2 {
+				continue
+			}
+			parts = append(parts, fmt.Sprintf("the same predictions of %s scored from %s on %s to %s on %s", m, f3(sp.Min), sp.MinExtent, f3(sp.Max), sp.MaxExtent))
+		}
+		if len(parts) == 0 {
+			return ""
+		}
+		each := ""
+		if s.TestPointsVary {
+			each = " (each on the test records inside that extent)"
+		}
+		return fmt.Sprintf("The value of AUC is therefore a property of the model and the extent together: %s%s. ", joinList(parts), each)
+	}
+	return ""
+}
+
+// rankingOrderText says, after an AUC model comparison counted over the
+// extents, whether the order of the two models held: ", so their order
+// held on every extent" when one is better beyond noise on all of them,
+// ", so their order depends on the extent" when each is better beyond
+// noise somewhere, ", so their order did not reverse beyond noise on any
+// extent" when only the first is, else "".
+func rankingOrderText(rk ModelRanking) string {
+	switch {
+	case rk.Extents > 1 && (rk.Better == rk.Extents || rk.Worse == rk.Extents):
+		return ", so their order held on every extent"
+	case rk.Better > 0 && rk.Worse > 0:
+		return ", so their order depends on the extent"
+	case rk.Better > 0 && rk.Worse == 0:
+		return ", so their order did not reverse beyond noise on any extent"
+	}
+	return ""
 }
 
 // reviewerNullText tells the reviewer, for AUC on the base extent, whether

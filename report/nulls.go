@@ -134,9 +134,9 @@ func nullSentences(r *Results) string {
 		}
 		if v, ok := auc(n.Name, vocab.BaseID); ok {
 			if k == 1 {
-				b.WriteString(", the base region")
+				b.WriteString(", the base extent")
 			} else {
-				fmt.Fprintf(&b, " and was %s on the base region", f3(v))
+				fmt.Fprintf(&b, " and was %s on the base extent", f3(v))
 			}
 			var ms []string
 			for _, m := range r.Models {

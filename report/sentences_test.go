@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"html/template"
 	"math"
 	"regexp"
 	"slices"
@@ -1244,7 +1245,16 @@ func TestExplorerPartialROCLabel(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	checkWords(t, "page", string(page), []string{`(full sample; the published bootstrap's 2.5th to 97.5th percentile `}, []string{"half-size"})
+	checkWords(t, "page", string(page), []string{`(full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": "`,
+		`"bootstrap":"the published bootstrap"`}, []string{"half-size", "the published bootstrap's"})
+	// Another --fraction is not the published bootstrap: the explorer
+	// called it that whatever the fraction.
+	r.Settings.ResampleFraction = 0.3
+	page, err = htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page at fraction 0.3", string(page), []string{`"bootstrap":"a bootstrap like the published one (which draws 50%)"`}, []string{`"bootstrap":"the published bootstrap"`})
 }
 
 // TestBootstrapNamedByFraction: the partial ROC bootstrap is "the
@@ -1474,4 +1484,216 @@ func TestChainFewTestPoints(t *testing.T) {
 	if !found {
 		t.Fatal("no chain of good through base")
 	}
+}
+
+// TestLongFamilyListed: methods.md writes a run of buffers of a long
+// family as one item with every distance, and the extents short of test
+// records as the base extent's count and the others' range, so that the
+// paragraph stays one a modeller can paste; a family of at most
+// maxListed extents is listed one by one.
+func TestLongFamilyListed(t *testing.T) {
+	var exts []Extent
+	exts = append(exts, Extent{ID: "base", Kind: vocab.KindBase, Params: "file=region.gpkg", AreaKm2: 3.14e6})
+	for i, d := range []int{-40, -20, 20, 40, 60, 80} {
+		exts = append(exts, Extent{ID: fmt.Sprintf("region_%dkm", d), Kind: vocab.KindRegionBuffer, Params: fmt.Sprintf("d_km=%d", d), AreaKm2: 2e6 + float64(i)*1e5})
+	}
+	for i, d := range []int{25, 50, 75, 100, 125} {
+		exts = append(exts, Extent{ID: fmt.Sprintf("points_%dkm", d), Kind: vocab.KindPointBuffer, Params: fmt.Sprintf("d_km=%d; around=training points", d), AreaKm2: 5e5 * float64(i+1)})
+	}
+	exts = append(exts, Extent{ID: "hull", Kind: vocab.KindHull, Params: "convex hull of training points", AreaKm2: 7e6})
+	got := strings.Join(familyList(exts), " | ")
+	want := "base (the base extent, the study region as given: file=region.gpkg; 3,140,000 km²) | region_-40km to region_80km (6 region buffers, d_km = -40, -20, 20, 40, 60, 80; 2,000,000 to 2,500,000 km²) | " +
+		"points_25km to points_125km (5 point buffers, d_km = 25, 50, 75, 100, 125; around=training points; 500,000 to 2,500,000 km²) | hull (convex hull of training points; 7,000,000 km²)"
+	if got != want {
+		t.Errorf("long family:\n got %s\nwant %s", got, want)
+	}
+	if got := familyList(exts[:maxListed]); len(got) != maxListed {
+		t.Errorf("a family of %d extents is summarized: %q", maxListed, got)
+	}
+
+	s := &Sensitivity{BaseExtent: "base"}
+	var fewer []string
+	for i, e := range exts {
+		s.ScoredExtents = append(s.ScoredExtents, e.ID)
+		s.TestPoints = append(s.TestPoints, 100+i)
+		fewer = append(fewer, fmt.Sprintf("%s %d", e.ID, 100+i))
+	}
+	if got, want := fewerList(s, fewer, false), "base 100; between 101 (region_-40km) and 112 (hull) on the other 12 (each in the report's Extents table)"; got != want {
+		t.Errorf("fewer:\n got %s\nwant %s", got, want)
+	}
+	if got, want := fewerList(s, fewer[:3], true), "base 100, region_-40km 101 and region_-20km 102"; got != want {
+		t.Errorf("short list of fewer: got %s, want %s", got, want)
+	}
+}
+
+// TestReplyAnswersTheQuestion: the reply to a reviewer answers "model or
+// extent?" for AUC with each extent-sensitive model's range, says
+// whether the model order held, says the intervals are not adjusted for
+// the number of extents, and does not blame an undetermined verdict on
+// too few test records (it may be an interval straddling the tolerance).
+func TestReplyAnswersTheQuestion(t *testing.T) {
+	r := loadSample(t)
+	s := analyzed(t, r)
+	reply := reviewerText(r)
+	sp := s.findSpread("auc", "good")
+	checkWords(t, "reply", reply, []string{
+		"The intervals are per extent, not adjusted for the 7 comparisons with the base extent.",
+		fmt.Sprintf("The value of AUC is therefore a property of the model and the extent together: the same predictions of good scored from %s on %s to %s on %s",
+			f3(sp.Min), sp.MinExtent, f3(sp.Max), sp.MaxExtent),
+		"(each on the test records inside that extent)",
+	}, []string{"too few (or the score undefined)"})
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.Better == rk.Extents && !strings.Contains(reply, "so their order held on every extent") {
+			t.Errorf("%s better on every extent, the reply does not say the order held:\n%s", rk.Model, reply)
+		}
+	}
+	if rankingOrderText(ModelRanking{Extents: 5, Better: 2, Worse: 1}) != ", so their order depends on the extent" {
+		t.Error("an order reversed beyond noise is not said to depend on the extent")
+	}
+}
+
+// TestPageSaysWhatItShows: the summary names the base extent, what it is
+// and its test points, so that a newcomer can read "difference from
+// base"; a table longer than foldRows (or summaryFoldRows in the
+// summary) is folded under a line that counts its rows; the nested
+// rings say, where test points enter along a chain, that a ring's
+// "inside" AUC is on the outer extent's test points; and the distance-only
+// null's threshold rows are said to describe its construction.
+func TestPageSaysWhatItShows(t *testing.T) {
+	r := withNull(t)
+	s := analyzed(t, r)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := string(page)
+	var base *Extent
+	for i := range r.Extents {
+		if r.Extents[i].ID == s.BaseExtent {
+			base = &r.Extents[i]
+		}
+	}
+	entering := false
+	for _, c := range s.Chains {
+		for _, st := range c.Steps {
+			entering = entering || st.Kind == StepTestPoints
+		}
+	}
+	if !entering {
+		t.Fatal("the sample has no chain along which test points enter: the case is not tested")
+	}
+	checkWords(t, "page", p, []string{
+		fmt.Sprintf(`<p class="basenote" id="base-note">The base extent is base (kind %s: %s; %s km²; %d of the %d test points). Every &#34;difference from base&#34; on this page`,
+			base.Kind, base.Params, fmtArea(base.AreaKm2), base.TestPoints, r.PointCounts.Test),
+		"<h3>Nested rings</h3><p>" + template.HTMLEscapeString(chainsEnteringNote) + "</p>",
+		"The rows of " + DistanceNullName + " (distance-only null) are not a model&#39;s",
+		`<th scope="col">area (km²)</th>`,
+	}, nil)
+	var long, short int
+	for _, m := range regexp.MustCompile(`(<details class="fold"><summary>Show the table \((\d+) rows; click a column header to sort\)</summary>)?<div class="tablewrap"><table class="sortable" id="([a-z-]+)">`).FindAllStringSubmatch(p, -1) {
+		rows := strings.Count(p[strings.Index(p, `id="`+m[3]+`"`):][:strings.Index(p[strings.Index(p, `id="`+m[3]+`"`):], "</table>")], "<tr><td")
+		limit := foldRows
+		if m[3] == "tbl-above-null-summary" {
+			limit = summaryFoldRows
+		}
+		switch folded := m[1] != ""; {
+		case folded && strconv.Itoa(rows) != m[2]:
+			t.Errorf("table %s: summary counts %s rows, table has %d", m[3], m[2], rows)
+		case folded != (rows > limit):
+			t.Errorf("table %s of %d rows: folded %v, limit %d", m[3], rows, folded, limit)
+		case folded:
+			long++
+		default:
+			short++
+		}
+	}
+	if long == 0 || short == 0 {
+		t.Errorf("%d folded and %d open tables: the sample should have both", long, short)
+	}
+	if strings.Count(p, "<details") != strings.Count(p, "</details>") {
+		t.Error("unbalanced details elements")
+	}
+}
+
+// TestTermsSection: the page defines the words a newcomer meets (AUC,
+// partial ROC and E, omission rate, minimum training presence, binomial
+// test, Boyce index, the verdicts, the paired differences), each
+// published method with its citation, and the distance-only null only
+// when the run scored it.
+func TestTermsSection(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		r    *Results
+		null bool
+	}{{"with null", withNull(t), true}, {"without null", loadSample(t), false}} {
+		t.Run(c.name, func(t *testing.T) {
+			analyzed(t, c.r)
+			page, err := htmlPage(c.r, nil, "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			p := string(page)
+			i := strings.Index(p, `<section id="terms">`)
+			if i < 0 || !strings.Contains(p, `<a href="#terms">Terms</a>`) {
+				t.Fatal("no Terms section in the page or its contents")
+			}
+			terms := p[i : i+strings.Index(p[i:], "</section>")]
+			checkWords(t, "terms", terms, []string{
+				"<dt>AUC</dt><dd>", "(Hanley &amp; McNeil 1982)",
+				"<dt>partial ROC ratio, E</dt>", "(Peterson et al. 2008)", "(0.05 and 0.1 here)",
+				"<dt>omission rate</dt>", "<dt>minimum training presence, 10th percentile training presence</dt>",
+				"<dt>binomial test</dt>", "(Anderson et al. 2003)",
+				"<dt>Boyce index</dt>", "(Boyce et al. 2002; Hirzel et al. 2006)",
+				"<dt>robust, extent-sensitive, undetermined</dt>", "tolerances we chose",
+				"not adjusted for the number of extents", "<dt>descriptions</dt>",
+			}, nil)
+			if got := strings.Contains(terms, "<dt>distance-only null</dt>"); got != c.null {
+				t.Errorf("distance-only null defined: %v, want %v", got, c.null)
+			}
+		})
+	}
+}
+
+// TestIDListCapped: a cell of the omitted table lists at most maxIDs ids
+// and says how many more there are and where they are; a null at 60
+// extents missed all 500 test points and its cell ran to screens.
+func TestIDListCapped(t *testing.T) {
+	var ids []string
+	for i := 1; i <= maxIDs+15; i++ {
+		ids = append(ids, strconv.Itoa(i))
+	}
+	got := idList(ids)
+	if !strings.HasPrefix(got, "1, 2, 3,") || !strings.HasSuffix(got, ", 30 and 15 more (results.json, omissions, lists every one)") {
+		t.Errorf("idList of %d ids: %s", len(ids), got)
+	}
+	if got := idList(ids[:maxIDs]); got != strings.Join(ids[:maxIDs], ", ") {
+		t.Errorf("idList of %d ids is shortened: %s", maxIDs, got)
+	}
+}
+
+// TestExtentListCapped: a cell naming extents names at most
+// maxExtentNames, after their count.
+func TestExtentListCapped(t *testing.T) {
+	var ids []string
+	for i := 0; i < maxExtentNames+3; i++ {
+		ids = append(ids, fmt.Sprintf("e%d", i))
+	}
+	if got, want := extentList(ids), fmt.Sprintf("%d extents: e0, e1, e2, e3, e4, e5, e6, e7, …", len(ids)); got != want {
+		t.Errorf("extentList: %s, want %s", got, want)
+	}
+	if got := extentList(ids[:2]); got != "e0, e1" {
+		t.Errorf("extentList of two: %s", got)
+	}
+}
+
+// TestMetricsCaptionBarsNotPaired: the scores figure's bars are per
+// extent, and the caption says a difference between extents is read from
+// the paired difference, not from overlapping bars (the extents share
+// their test points).
+func TestMetricsCaptionBarsNotPaired(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "caption", metricsCaption(r), []string{"so whether two extents differ is read from their paired difference under Analysis, not from overlapping bars",
+		"The base extent, base, whose scores the Analysis takes differences from, is at 40,600 km². "}, nil)
+	r.Settings.PairedResamples, r.Settings.Iterations = 0, 1
+	checkWords(t, "caption without bars", metricsCaption(r), nil, []string{"overlapping bars"})
 }

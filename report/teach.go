@@ -45,7 +45,14 @@ type teachPayload struct {
 	Extents []teachExtent `json:"extents"`
 	E       float64       `json:"e"`
 	Default string        `json:"default_extent"`
-	Cells   []teachCell   `json:"cells"`
+	// Base is the extent every difference is taken from (the base
+	// extent, or the one standing in for it).
+	Base string `json:"base_extent"`
+	// Bootstrap names the partial ROC bootstrap whose percentiles the
+	// explorer quotes (bootstrapName: "the published bootstrap" only
+	// when it draws 50%).
+	Bootstrap string      `json:"bootstrap"`
+	Cells     []teachCell `json:"cells"`
 }
 
 func round4(v float64) float64 { return math.Round(v*1e4) / 1e4 }
@@ -65,6 +72,7 @@ func teachData(r *Results) ([]byte, error) {
 	if len(r.Settings.E) > 0 {
 		pl.E = r.Settings.E[0]
 	}
+	pl.Base, pl.Bootstrap = s.BaseExtent, bootstrapName(r.Settings)
 	for _, e := range rocExtents(r) {
 		pl.Extents = append(pl.Extents, teachExtent{ID: e.ID, Kind: e.Kind, Params: e.Params, AreaKm2: e.AreaKm2, Area: fmtArea(e.AreaKm2)})
 		if e.ID == vocab.BaseID {

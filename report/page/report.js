@@ -159,16 +159,16 @@
       } else {
         if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
-        sent.textContent = "On " + eid + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) " + who(m) +
+        sent.textContent = "On " + eid + (eid === data.base_extent ? ", the base extent" : "") + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) " + who(m) +
           " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model or null on the other extents" +
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
         row("AUC", fx(c.auc, 3) + " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")");
-        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (full sample; the published bootstrap's 2.5th to 97.5th percentile " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
+        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
-          row("area predicted present at that threshold", fx(c.area_fraction, 3));
+          row("predicted area at that threshold (share of the extent)", fx(c.area_fraction, 3));
         }
         box.setAttribute("data-auc", String(c.auc));
       }
