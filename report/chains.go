@@ -262,14 +262,18 @@ func fewPointsClause(fewest int) string {
 // often than above the inner extent's cells, and whether the ring is
 // easier or harder than chance.
 func ringClause(st ChainStep) string {
-	s := fmt.Sprintf("whose AUC is %s against %s inside %s: ", f3(st.AUCRing), f3(st.AUCInner), st.Inner)
+	// Both AUCs are on the test points of the outer member, so the inner
+	// one is not the inner extent's own AUC (on its own test points): the
+	// sentence says so, or a reader comparing it with the scores table
+	// sees a contradiction.
+	s := fmt.Sprintf("whose AUC is %s against %s for the cells of %s (both on the test points of %s): ", f3(st.AUCRing), f3(st.AUCInner), st.Inner, st.Outer)
 	// Whether adding the ring raises or lowers the score follows from the
 	// ring's AUC against the inner one alone; below 0.5 says more.
 	switch {
 	case st.AUCRing > st.AUCInner && st.AUCRing < 0.5:
 		return s + "the model still scores the ring's cells above the test points more often than not, but less often than the inner cells, so adding the ring raises the score."
 	case st.AUCRing > st.AUCInner:
-		return s + "the test points outrank the ring's cells more often than the inner cells, so adding the ring raises the score although the ranking near the records is unchanged."
+		return s + "the test points outrank the ring's cells more often than the inner cells, so adding the ring raises the score."
 	case st.AUCRing < st.AUCInner && st.AUCRing < 0.5:
 		return s + "the model scores the ring's cells above the test points more often than not, so adding it lowers the score."
 	case st.AUCRing < st.AUCInner:

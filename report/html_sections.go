@@ -244,8 +244,8 @@ func idList(ids []string) string {
 
 // chainsEnteringNote is chainsView.Note.
 const chainsEnteringNote = "Test points enter along some chains (rows \"test points entering\" in the table). " +
-	"A ring's AUC is compared with the AUC inside the inner extent on the test points of the outer one, " +
-	"so where test points have entered, the AUC \"inside\" an extent in a sentence differs from that extent's own AUC in the Scores table; " +
+	"A ring's AUC is compared with the AUC of the inner extent's cells on the test points of the outer one, " +
+	"so where test points have entered, that inner AUC in a sentence differs from the inner extent's own AUC in the Scores table; " +
 	"the step of entering test points accounts for the difference."
 
 // chainsSection is the nested rings' sentences, steps and slopes; nil

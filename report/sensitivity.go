@@ -246,9 +246,11 @@ type ExtentDifference struct {
 //	robust           every paired difference from the base extent has its
 //	                 95% interval inside -T..+T
 //	extent-sensitive at least one interval lies wholly outside -T..+T
-//	undetermined     otherwise: too few test points to tell (Largest names
-//	                 the largest difference and its interval), or no
-//	                 difference could be formed
+//	undetermined     otherwise: an interval straddles -T or +T (too wide
+//	                 to tell), some differences rest on too few common test
+//	                 points to be judged (Largest names the largest
+//	                 difference and its interval), or no difference could
+//	                 be formed
 type ModelVerdict struct {
 	Metric    string    `json:"metric"`
 	Label     string    `json:"label"`

@@ -96,7 +96,24 @@ func TestVerdictSentences(t *testing.T) {
 				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.02, 0.04 })
 			},
 			metric: "auc", model: "good", verdict: JudgementUndetermined,
-			want: []string{"too few test points", "(95% interval +0.020 to +0.040)"}},
+			// An interval touching the tolerance straddles it: too wide
+			// to tell, whatever the number of test points.
+			want:    []string{"the paired intervals are too wide to tell", "(95% interval +0.020 to +0.040)"},
+			notWant: []string{"too few"}},
+		{name: "undetermined only by a difference on too few test points",
+			build: func(r *Results) {
+				for i := range r.Paired {
+					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+					}
+				}
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) {
+					p.Diff, p.Low, p.High, p.CommonPoints = 0.03, -0.05, 0.11, MinPairedPoints-1
+				})
+			},
+			metric: "auc", model: "good", verdict: JudgementUndetermined,
+			want:    []string{"too few common test points to tell", "Not judged, on fewer than"},
+			notWant: []string{"too wide", "straddles"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -176,8 +176,17 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
 			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
-			name, tol, a.base, differenceText(big, m.Tolerance), straddleText(mv.Diffs, big, m.Tolerance), notOn, tooFewText(mv.Diffs))
+		// Undetermined because an interval straddles the tolerance (the
+		// paired intervals are too wide, whatever the number of test
+		// points), or only because some differences rest on too few
+		// common test points to be judged.
+		straddle := straddleText(mv.Diffs, big, m.Tolerance)
+		why := "too few common test points to tell"
+		if straddle != "" {
+			why = "the paired intervals are too wide to tell"
+		}
+		mv.Sentence = fmt.Sprintf("%s is undetermined: %s whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
+			name, why, tol, a.base, differenceText(big, m.Tolerance), straddle, notOn, tooFewText(mv.Diffs))
 	}
 	return mv
 }

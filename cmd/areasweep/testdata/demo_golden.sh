@@ -80,6 +80,15 @@
 #   - rewritten again on branch h13 (an undetermined verdict's sentence
 #     adds on how many extents its interval straddles the tolerance: the
 #     demo's Boyce index of good, "on 7 of 12 extents"; sentence only);
+#   - rewritten at the 2026-12-03 review of the report's words: an
+#     undetermined verdict whose interval straddles the tolerance says
+#     "the paired intervals are too wide to tell" instead of "too few
+#     test points" (the demo's Boyce index of good, on 80 common test
+#     points), and a nested ring's sentence says both AUCs are on the
+#     outer member's test points ("against 0.759 for the cells of hull
+#     (both on the test points of hull_100km)", which differs from hull's
+#     own 0.762) and drops a clause repeated for every chain; sentences
+#     under sensitivity only, every number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
