@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"path/filepath"
 	"regexp"
 	"runtime/debug"
@@ -18,6 +17,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/stopsig"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
 )
@@ -80,12 +80,12 @@ func init() {
 // removes the run's staging folder and exits with 128+N; a panic is
 // recovered, reported in one line and its trace written to a run.log.
 func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
-	extent.Configure()
-	gdalmsg.Install()
-	sigs := make(chan os.Signal, 1)
-	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	// The signals have been caught since the program's first package
+	// inits (stopsig); one caught meanwhile is handled here at once,
+	// before GDAL is set up.
+	sigs := stopsig.Listen()
 	stop := make(chan struct{})
-	defer func() { signal.Stop(sigs); close(stop) }()
+	defer func() { stopsig.Stop(); close(stop) }()
 	go func() {
 		select {
 		case s := <-sigs:
@@ -96,6 +96,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		case <-stop:
 		}
 	}()
+	extent.Configure()
+	gdalmsg.Install()
 	defer func() {
 		if r := recover(); r != nil {
 			outdir.AbortAll()
