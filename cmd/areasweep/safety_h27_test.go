@@ -9,7 +9,14 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"areasweep/cmd/internal/stopsig"
 )
+
+// The test binary links package main, so stopsig's init catches the stop
+// signals here too; hand them back, so that Ctrl-C stops the tests as
+// usual (each in-process Main catches them again while it runs).
+func init() { stopsig.Stop() }
 
 // heldSetUp starts cmd with GDAL's configuration file (GDAL_CONFIG_FILE,
 // read while GDAL's drivers are registered, before the command line is
