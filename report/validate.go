@@ -31,10 +31,15 @@ const MaxPreviewSide = 4096
 //   - points have a known role and status and finite coordinates;
 //   - the preview's size and encoded lengths match.
 func Validate(r *Results) error {
+	return validate("results.json", r)
+}
+
+// validate is Validate naming the file as file in its message.
+func validate(file string, r *Results) error {
 	if r == nil {
 		return fmt.Errorf("report: no results")
 	}
-	v := &validator{}
+	v := &validator{file: file}
 	v.settings(r.Settings)
 	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
 		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
@@ -162,11 +167,15 @@ func Validate(r *Results) error {
 }
 
 // validator keeps the first problem found.
-type validator struct{ err error }
+// validator gathers Validate's first problem; file names the file in it.
+type validator struct {
+	file string
+	err  error
+}
 
 func (v *validator) fail(at, format string, args ...any) {
 	if v.err == nil {
-		v.err = fmt.Errorf("report: results.json %s: %s; the file was changed or damaged: rerun areasweep run to get a new one", at, fmt.Sprintf(format, args...))
+		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, at, fmt.Sprintf(format, args...))
 	}
 }
 
