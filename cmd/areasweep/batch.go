@@ -189,6 +189,10 @@ type batchStudy struct {
 	// inputs compares the input files a marker records with the files
 	// now; one for the whole batch, shared by its studies.
 	inputs *batch.Checker
+	// missing, when not nil, names an input file of the study that does
+	// not exist (with the table's file, line and column): the study
+	// fails without running, the others run.
+	missing error
 }
 
 // resolveBatch reads the table and resolves every row into run options,
@@ -226,11 +230,14 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 			bad(flagColumn(err.Error()), err)
 			continue
 		}
-		if col, err := missingInput(&ro.Options); err != nil {
-			bad(col, err)
-			continue
-		}
 		st := &batchStudy{id: row.ID, line: row.Line, opts: ro, dir: ro.Out, inputs: check}
+		if col, err := missingInput(&ro.Options); err != nil {
+			// Not the table's fault alone (a file may be
+			// removed or not yet written): this study fails,
+			// the others still run. A SLURM plan refuses it
+			// (batchSlurm), before anything is submitted.
+			st.missing = &inputs.BatchError{File: b.File, Line: row.Line, Column: col, Study: row.ID, Err: err}
+		}
 		st.settings = batch.SettingsHash(canonicalSettings(ro.Options))
 		studies = append(studies, st)
 	}
@@ -485,6 +492,11 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	if err != nil {
 		return fault.BadInput(err)
 	}
+	if o.Slurm.Enabled {
+		if err := slurmMissing(studies); err != nil {
+			return err
+		}
+	}
 	if err := o.Slurm.clientsPresent(); err != nil {
 		return fault.BadInput(err)
 	}
@@ -669,6 +681,11 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
 	var todo []int
 	for i, st := range studies {
+		if st.missing != nil {
+			errs[i] = st.missing
+			p.line(st.id, "not run: "+oneLine(fault.UserText(st.missing)))
+			continue
+		}
 		s, why, err := st.state()
 		switch {
 		case err != nil:
