@@ -498,6 +498,9 @@ func Load(path string) (*Results, error) {
 
 // Decode is Load on the bytes of the file at path.
 func Decode(path string, data []byte) (*Results, error) {
+	if len(bytes.TrimSpace(data)) == 0 {
+		return nil, fmt.Errorf("report: %s is empty: the run that wrote it did not finish, or the file was emptied; give the --out folder of a finished run, or rerun areasweep run", path)
+	}
 	shapeErr := CheckShape(data)
 	var top map[string]json.RawMessage
 	if err := json.Unmarshal(data, &top); err != nil {

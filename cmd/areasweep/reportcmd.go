@@ -86,6 +86,9 @@ func reportRun(o *ReportOptions) error {
 	if st, err := os.Lstat(filepath.Join(o.Dir, "figures")); err == nil && !st.IsDir() {
 		return fault.BadInput(fmt.Errorf("%s is a file; the report writes its figures into a folder of that name: move the file, then run again", filepath.Join(o.Dir, "figures")))
 	}
+	if err := notFileInTheWay(o.Dir, "report.html", "methods.md"); err != nil {
+		return err
+	}
 	start := time.Now()
 	r, err := report.Load(path) // shape, required fields, schema version, values
 	if err != nil {
@@ -112,6 +115,19 @@ func reportRun(o *ReportOptions) error {
 		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
 	}
 	o.logf("report written in %.2f s", time.Since(start).Seconds())
+	// A folder where a figure file goes (the names are known once
+	// drawn) would stop the move half-way: refuse it before moving.
+	figs, err := os.ReadDir(filepath.Join(st2.Path, "figures"))
+	if err != nil {
+		return fmt.Errorf("reading the drawn figures: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
+	}
+	names := make([]string, len(figs))
+	for i, f := range figs {
+		names[i] = f.Name()
+	}
+	if err := notFileInTheWay(filepath.Join(o.Dir, "figures"), names...); err != nil {
+		return err
+	}
 	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir) }); err != nil {
 		return fmt.Errorf("moving the report into %s failed: %s", o.Dir, outdir.Cause(err))
 	}
@@ -124,6 +140,24 @@ func (o *ReportOptions) logf(format string, args ...any) {
 	if !o.Quiet {
 		fmt.Fprintf(o.IO.ErrOut, format+"\n", args...)
 	}
+}
+
+// notFileInTheWay refuses when one of names in dir exists and is not a
+// regular file or a link (a folder, a FIFO, ...): the report replaces a
+// file of that name, and renaming onto a folder fails half-way through
+// the report's files.
+func notFileInTheWay(dir string, names ...string) error {
+	for _, n := range names {
+		p := filepath.Join(dir, n)
+		if st, err := os.Lstat(p); err == nil && !st.Mode().IsRegular() && st.Mode()&fs.ModeSymlink == 0 {
+			what := "a folder"
+			if !st.IsDir() {
+				what = "not a regular file"
+			}
+			return fault.BadInput(fmt.Errorf("%s is %s; the report writes a file of that name: move it out of the way, then run again (nothing was changed)", p, what))
+		}
+	}
+	return nil
 }
 
 // placeReport moves the report rendered into stage into dir: each figure

@@ -151,3 +151,45 @@ func TestReportQuiet(t *testing.T) {
 		t.Errorf("report --quiet: exit %d, stdout %q, stderr %q (want none)", code, so, se)
 	}
 }
+
+// TestReportFolderInTheWay: a folder where the report writes a file
+// (report.html, methods.md, a figure) is refused with exit 2 before
+// anything is moved, naming it (the move used to stop half-way with the
+// system's "file exists", exit 1, some figures already replaced).
+func TestReportFolderInTheWay(t *testing.T) {
+	for _, name := range []string{"report.html", "methods.md", filepath.Join("figures", "metrics_vs_area.svg")} {
+		t.Run(name, func(t *testing.T) {
+			dir := t.TempDir()
+			os.WriteFile(filepath.Join(dir, "results.json"), []byte(sampleResults(t)), 0o644)
+			if code := Main([]string{"report", dir, "--quiet"}, nil, &strings.Builder{}, &strings.Builder{}); code != 0 {
+				t.Fatalf("first report: exit %d", code)
+			}
+			p := filepath.Join(dir, name)
+			os.Remove(p)
+			if err := os.MkdirAll(filepath.Join(p, "mine"), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			before := treeSums(t, dir)
+			_, se, code := runBin(t, "report", dir, "--force", "--quiet")
+			if code != 2 || !strings.Contains(se, p+" is a folder") || !strings.Contains(se, "move it out of the way") || strings.Contains(se, "file exists") {
+				t.Errorf("exit %d, want 2 naming %s: %s", code, p, se)
+			}
+			if !sameSums(before, treeSums(t, dir)) {
+				t.Error("the folder changed after the refusal")
+			}
+			if l := leftovers(dir); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+			}
+		})
+	}
+}
+
+// TestReportEmptyResults: an empty results.json is named as empty.
+func TestReportEmptyResults(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "results.json"), nil, 0o644)
+	_, se, code := runBin(t, "report", dir)
+	if code != 2 || !strings.Contains(se, "results.json is empty") {
+		t.Errorf("exit %d, want 2 saying the file is empty: %s", code, se)
+	}
+}
