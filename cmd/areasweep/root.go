@@ -226,9 +226,14 @@ reports how much of each score comes from the extent rather than from the model.
 			return nil
 		}
 	}
-	for _, c := range root.Commands() {
-		c.Args = wrapArgs(c.Args)
+	var wrap func(cs []*cobra.Command)
+	wrap = func(cs []*cobra.Command) {
+		for _, c := range cs {
+			c.Args = wrapArgs(c.Args)
+			wrap(c.Commands()) // completion's shells
+		}
 	}
+	wrap(root.Commands())
 	return root
 }
 
@@ -250,6 +255,14 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 			return nil
 		case strings.Contains(err.Error(), "--help"): // the command's own message
 			return fault.BadInput(err)
+		case strings.HasPrefix(err.Error(), "unknown command ") && !c.HasSubCommands() && len(args) > 0:
+			// cobra calls a stray word an unknown command even where
+			// the command has none: most often a value without its flag.
+			hint := ""
+			if c.Flags().Lookup("out") != nil {
+				hint = ": give each value after its flag, e.g. --out DIR"
+			}
+			return fault.BadInput(fmt.Errorf("'%s' takes no arguments, got %q%s (see '%s --help')", c.CommandPath(), args[0], hint, c.CommandPath()))
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
 			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 		}
