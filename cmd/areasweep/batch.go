@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -104,6 +105,20 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 				return fault.BadInput(errors.New("name the study table: areasweep batch TABLE --out DIR (areasweep batch --template prints an example)"))
 			}
 			opts.Table = args[0]
+			if c.Flags().Changed("only") {
+				// A scheduler passes --only "$AREASWEEP_STUDY": empty,
+				// it must not mean "every study" (each task would run
+				// the whole table).
+				for i, id := range opts.Only {
+					opts.Only[i] = strings.TrimSpace(id)
+				}
+				if len(opts.Only) == 0 || (len(opts.Only) == 1 && opts.Only[0] == "") {
+					return fault.BadInput(errors.New("--only is empty; name the study ids to run, comma-separated (is the variable that should hold them set?)"))
+				}
+				if slices.Contains(opts.Only, "") {
+					return fault.BadInput(fmt.Errorf("--only %q holds an empty id (a stray comma?); name the study ids, comma-separated", strings.Join(opts.Only, ",")))
+				}
+			}
 			if c.Flags().Changed("memory") {
 				m, err := parseBytes(memory)
 				if err != nil {

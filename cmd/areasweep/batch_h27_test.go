@@ -110,3 +110,33 @@ func TestBatchStudyFolderIsFile(t *testing.T) {
 		}
 	}
 }
+
+// TestBatchOnlyEmpty: --only given empty (a scheduler's unset variable)
+// or with an empty item is refused; it used to mean "every study", so
+// each task of an array would have run the whole table. Spaces around
+// ids are dropped.
+func TestBatchOnlyEmpty(t *testing.T) {
+	for _, c := range []struct {
+		only, want string
+	}{
+		{"", "--only is empty"},
+		{" ", "--only is empty"},
+		{"a,", `--only "a," holds an empty id`},
+		{",a", `--only ",a" holds an empty id`},
+	} {
+		ran := false
+		cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
+		cmd.SetArgs([]string{"t.csv", "--out", "o", "--only", c.only})
+		cmd.SilenceErrors, cmd.SilenceUsage = true, true
+		err := cmd.Execute()
+		if ran || err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("--only %q: ran %v, error %v; want %q", c.only, ran, err, c.want)
+		}
+	}
+	var got []string
+	cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(o *BatchOptions) error { got = o.Only; return nil })
+	cmd.SetArgs([]string{"t.csv", "--out", "o", "--only", "a, b"})
+	if err := cmd.Execute(); err != nil || strings.Join(got, "|") != "a|b" {
+		t.Errorf(`--only "a, b": %q, %v; want a and b`, got, err)
+	}
+}
