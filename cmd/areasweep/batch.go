@@ -542,17 +542,17 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])
 		}
 	}
-	failed := 0
-	for _, err := range errs {
-		if err != nil {
-			failed++
-		}
-	}
 	if len(o.Only) == 0 {
 		if err := writeBatchSummary(o, studies, errs); err != nil {
 			return err
 		}
 		fmt.Fprintf(o.IO.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
+	}
+	failed := 0
+	for _, err := range errs {
+		if err != nil {
+			failed++
+		}
 	}
 	if failed > 0 {
 		return failedStudies(o, studies, errs, failed)
@@ -569,14 +569,18 @@ const maxFailuresShown = 20
 // and with --only, as in a scheduler task's log, no summary lists them).
 func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
 	var ids, lines []string
-	stale := 0
+	stale, damaged := 0, 0
 	for i, err := range errs {
 		if err == nil {
 			continue
 		}
 		var se *staleError
-		if errors.As(err, &se) {
+		var de *damagedError
+		switch {
+		case errors.As(err, &se):
 			stale++
+		case errors.As(err, &de):
+			damaged++
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -592,10 +596,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	}
 	again := "running the same command again retries them"
 	switch {
+	case damaged == failed:
+		again = "each line says what to do"
 	case stale == failed:
 		again = "--force runs them again (they were made from other settings or inputs)"
-	case stale > 0:
-		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
+	case stale > 0 || damaged > 0:
+		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
@@ -608,6 +614,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 type staleError struct{ msg string }
 
 func (e *staleError) Error() string { return e.msg }
+
+// damagedError is the error of a finished study whose results.json no
+// longer reads as a run wrote it: running the batch again skips it.
+type damagedError struct{ msg string }
+
+func (e *damagedError) Error() string { return e.msg }
 
 // failurePath is where a study's last error is kept, so that a summary
 // written later (by the scheduler's merge job) can show it.
@@ -892,7 +904,10 @@ func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error
 
 // writeBatchSummary loads each finished study's results.json (the same
 // bytes whether it ran now or earlier, so the summary does not depend on
-// --jobs or on resuming) and writes the summary into --out.
+// --jobs or on resuming) and writes the summary into --out. A finished
+// study whose results.json cannot be read as a run wrote it (edited or
+// damaged since) gets its error in errs: the summary and the exit status
+// count it as failed.
 func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) error {
 	rs := make([]report.StudyResult, len(studies))
 	for i, st := range studies {
@@ -905,7 +920,10 @@ func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) err
 		}
 		r, err := report.Load(filepath.Join(st.dir, "results.json"))
 		if err != nil {
-			rs[i].Err = errors.New(fault.UserText(err))
+			// Finished (its completion marker is there), so the same
+			// command would skip it again: say how to run it again.
+			errs[i] = &damagedError{fmt.Sprintf("%s; the study counts as finished: restore the file, or remove %s and run the same command with --force to run the study again", strings.TrimSuffix(fault.UserText(err), "."), batch.MarkerPath(st.dir))}
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
 		rs[i].Results, rs[i].Report = r, st.id+"/report.html"

@@ -140,3 +140,43 @@ func TestBatchOnlyEmpty(t *testing.T) {
 		t.Errorf(`--only "a, b": %q, %v; want a and b`, got, err)
 	}
 }
+
+// TestBatchDamagedResults: a finished study whose results.json was edited
+// since (a field deleted) is not summarised from wrong numbers: running
+// the batch again lists it as failed (exit 1) with the file, the field
+// and what to do; once its completion marker is removed it runs again.
+func TestBatchDamagedResults(t *testing.T) {
+	s := sharedStudy(t)
+	table := h27Table(t, s, "one,m=MODEL,OCC,REGION", "two,m=MODEL,OCC,REGION")
+	out := filepath.Join(t.TempDir(), "runs")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("first batch: exit %d: %s", code, se)
+	}
+	res := filepath.Join(out, "two", "results.json")
+	good, err := os.ReadFile(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(res, deleteField(t, good, "scores", 0, "auc"), 0o644)
+	_, se, code := runBin(t, "batch", table, "--out", out, "--quiet")
+	marker := filepath.Join(out, "two", ".areasweep-done")
+	for _, want := range []string{"1 of 2 studies failed: two", res, "scores[0].auc is missing", "remove " + marker} {
+		if !strings.Contains(se, want) {
+			t.Errorf("stderr lacks %q: %s", want, se)
+		}
+	}
+	if code != 1 {
+		t.Errorf("exit %d, want 1", code)
+	}
+	sum, _ := os.ReadFile(filepath.Join(out, "summary.csv"))
+	if !strings.Contains(string(sum), "scores[0].auc is missing") {
+		t.Errorf("summary.csv does not list the damaged study: %s", sum)
+	}
+	os.Remove(marker)
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet", "--force"); code != 0 {
+		t.Errorf("after removing the marker: exit %d: %s", code, se)
+	}
+	if b, _ := os.ReadFile(res); string(b) != string(good) {
+		t.Error("the study run again wrote other results")
+	}
+}
