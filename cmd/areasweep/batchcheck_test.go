@@ -219,9 +219,10 @@ func TestSlurmSubmitWithoutSbatch(t *testing.T) {
 	}
 }
 
-// TestBatchListsEveryProblemInOneRound: a table with a bad id and a row
-// whose input file does not exist lists both, in line order, in one run
-// (the rows without a table problem are checked too), exit 2, nothing
+// TestBatchListsEveryProblemInOneRound: a table with a bad id and a
+// reserved one lists both, in line order, in one run (the rows without a
+// table problem are checked too; a row whose input file does not exist
+// is not a table problem: its study alone fails), exit 2, nothing
 // created.
 func TestBatchListsEveryProblemInOneRound(t *testing.T) {
 	s := sharedStudy(t)
