@@ -189,3 +189,22 @@ func TestMissingFieldRefused(t *testing.T) {
 		t.Errorf("only %d required fields tried", nReq)
 	}
 }
+
+// TestValidateEmptyLists: a results file with no model or no extent (the
+// lists emptied by hand) is refused; a run always has both.
+func TestValidateEmptyLists(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		edit func(r *Results)
+		want string
+	}{
+		{"no models", func(r *Results) { r.Models, r.Scores, r.Rings, r.Curves, r.Paired, r.Omissions = nil, nil, nil, nil, nil, nil }, "models: the list is empty"},
+		{"no extents", func(r *Results) { r.Extents, r.Scores, r.Rings, r.Curves, r.Paired, r.Preview = nil, nil, nil, nil, nil, nil }, "extents: the list is empty"},
+	} {
+		r := loadSample(t)
+		c.edit(r)
+		if err := Validate(r); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want %q", c.name, err, c.want)
+		}
+	}
+}

@@ -18,6 +18,7 @@ const MaxPreviewSide = 4096
 // problem names the field (`scores[3].auc`), the model and extent, the
 // value and the allowed range. It checks:
 //
+//   - at least one model and one extent;
 //   - the grid size (positive), point counts (>= 0), models (unique names,
 //     finite ranges, floor share in [0,1]) and extents (unique ids, a known
 //     status, counts and areas >= 0, share in [0,1], duplicate_of naming
@@ -50,6 +51,13 @@ func validate(file string, r *Results) error {
 		n    int
 	}{{"train", pc.Train}, {"test", pc.Test}, {"thinned", pc.Thinned}, {"outside_raster", pc.OutsideRaster}, {"nodata", pc.NoData}} {
 		v.nonNegInt("point_counts."+c.name, int64(c.n))
+	}
+	// A run scores at least one model on at least one extent (the base).
+	if len(r.Models) == 0 {
+		v.fail("models", "the list is empty; a run lists every model it scored")
+	}
+	if len(r.Extents) == 0 {
+		v.fail("extents", "the list is empty; a run lists every extent of its family, the base extent first")
 	}
 	models := map[string]bool{}
 	for i, m := range r.Models {
