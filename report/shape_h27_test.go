@@ -198,8 +198,12 @@ func TestValidateEmptyLists(t *testing.T) {
 		edit func(r *Results)
 		want string
 	}{
-		{"no models", func(r *Results) { r.Models, r.Scores, r.Rings, r.Curves, r.Paired, r.Omissions = nil, nil, nil, nil, nil, nil }, "models: the list is empty"},
-		{"no extents", func(r *Results) { r.Extents, r.Scores, r.Rings, r.Curves, r.Paired, r.Preview = nil, nil, nil, nil, nil, nil }, "extents: the list is empty"},
+		{"no models", func(r *Results) {
+			r.Models, r.Scores, r.Rings, r.Curves, r.Paired, r.Omissions = nil, nil, nil, nil, nil, nil
+		}, "models: the list is empty"},
+		{"no extents", func(r *Results) {
+			r.Extents, r.Scores, r.Rings, r.Curves, r.Paired, r.Preview = nil, nil, nil, nil, nil, nil
+		}, "extents: the list is empty"},
 	} {
 		r := loadSample(t)
 		c.edit(r)
