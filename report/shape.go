@@ -133,11 +133,17 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 		if t != nil {
 			elem = t.Elem()
 		}
-		for i := 0; dec.More(); i++ {
-			at := fmt.Sprintf("%s[%d]", path, i)
+		n := 0
+		for ; dec.More(); n++ {
+			at := fmt.Sprintf("%s[%d]", path, n)
 			if _, err := w.walk(at, elem, depth+1); err != nil {
 				return nil, err
 			}
+		}
+		if t != nil && t.Kind() == reflect.Array && n != t.Len() {
+			// A fixed-size list (the geotransform, the preview's
+			// bounds): decoding would fill the missing numbers with 0.
+			return nil, fmt.Errorf("%s holds %d values; a run writes %d there", shapePath(path), n, t.Len())
 		}
 		return nil, closeShape(dec, path)
 	case string:

@@ -108,8 +108,8 @@ func eachDeletion(t *testing.T, data []byte) []deletion {
 	if err := json.Unmarshal(data, &doc); err != nil {
 		t.Fatal(err)
 	}
-	// Lists cut to their first two elements (and the first unscored
-	// score), so that each of the few hundred files stays small.
+	// Lists longer than 8 cut to their first two elements (and the first
+	// unscored score), so that each of the few hundred files stays small.
 	var shrink func(v any) any
 	shrink = func(v any) any {
 		switch x := v.(type) {
@@ -118,7 +118,15 @@ func eachDeletion(t *testing.T, data []byte) []deletion {
 				x[k] = shrink(e)
 			}
 		case []any:
-			keep := x[:min(2, len(x))]
+			if len(x) <= 8 {
+				// Short lists stay whole: fixed-size ones (the
+				// geotransform, the preview's bounds) among them.
+				for i := range x {
+					x[i] = shrink(x[i])
+				}
+				return x
+			}
+			keep := x[:2]
 			for _, e := range x[len(keep):] {
 				if m, ok := e.(map[string]any); ok && m["scored"] == false {
 					keep = append(keep, e)
@@ -210,5 +218,30 @@ func TestValidateEmptyLists(t *testing.T) {
 		if err := Validate(r); err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: %v, want %q", c.name, err, c.want)
 		}
+	}
+}
+
+// TestShortFixedList: a fixed-size list cut by hand (the geotransform's
+// six numbers, the preview's four bounds) is refused naming it; decoding
+// would fill the missing numbers with 0.
+func TestShortFixedList(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(data, &doc); err != nil {
+		t.Fatal(err)
+	}
+	grid := doc["grid"].(map[string]any)
+	grid["geotransform"] = grid["geotransform"].([]any)[:5]
+	b, _ := json.Marshal(doc)
+	if _, err := Decode("r/results.json", b); err == nil || !strings.Contains(err.Error(), "grid.geotransform holds 5 values; a run writes 6 there") {
+		t.Errorf("geotransform of 5: %v", err)
+	}
+	grid["geotransform"] = append(grid["geotransform"].([]any), 0.0, 0.0)
+	b, _ = json.Marshal(doc)
+	if _, err := Decode("r/results.json", b); err == nil || !strings.Contains(err.Error(), "grid.geotransform holds 7 values") {
+		t.Errorf("geotransform of 7: %v", err)
 	}
 }
