@@ -16,50 +16,54 @@ import (
 // a hand edit can break silently: a key given twice (the last wins), a
 // field left out or null (it reads as 0), a value of the wrong kind or
 // not JSON (NaN) reported without its place. Each problem names the
-// field's path, e.g. scores[4].auc. Absent fields and unknown keys are
-// let through (see walkObject), except the scores every build writes for
-// a scored model and extent (scoredFields).
+// field's path, e.g. scores[4].auc.
+//
+// Which fields must be there (RequiredFieldsRule): every field that a run
+// always writes, that is every field of Results and its parts declared
+// without omitempty, in every object the report reads. Fields with
+// omitempty are optional (a file without input sidecars, a preview or a
+// sorting bias reads as before); an optional object that is there must
+// hold its own required fields. Two parts are exempt: `sensitivity`,
+// which `areasweep report` recomputes from the rest and never reads, and
+// the scores of an entry of `scores` with "scored": false, which no
+// figure or table reads (only model, extent, scored and area_km2 are
+// required there: unscoredRead). Unknown keys are let through. Structural problems (a key twice,
+// a wrong kind, broken JSON, trailing text) are reported before a missing
+// field; among missing fields, the first in the file's order.
 func CheckShape(data []byte) error {
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
-	if err := walkShape(dec, "", reflect.TypeOf(Results{}), 0); err != nil {
+	w := &shapeWalker{dec: dec}
+	if _, err := w.walk("", reflect.TypeOf(Results{}), 0); err != nil {
 		return err
 	}
 	if _, err := dec.Token(); err != io.EOF {
 		return errors.New("more JSON follows the results object")
 	}
-	return checkScoredFields(data)
-}
-
-// scoredFields are the fields every build of this schema writes for a
-// scored model and extent: one missing was removed by hand, and decoding
-// would read its number as 0.
-var scoredFields = []string{"auc", "auc_unweighted", "auc_se", "cells", "area_km2", "test_points", "train_points"}
-
-// checkScoredFields refuses a scored entry of scores that lacks one of
-// scoredFields, naming its path, model and extent.
-func checkScoredFields(data []byte) error {
-	var doc struct {
-		Scores []map[string]json.RawMessage `json:"scores"`
-	}
-	if err := json.Unmarshal(data, &doc); err != nil {
-		return nil // the walk has read it: nothing more to say here
-	}
-	for i, sc := range doc.Scores {
-		if string(sc["scored"]) != "true" {
-			continue
-		}
-		for _, k := range scoredFields {
-			if _, ok := sc[k]; !ok {
-				var model, extent string
-				json.Unmarshal(sc["model"], &model)
-				json.Unmarshal(sc["extent"], &extent)
-				return fmt.Errorf("scores[%d].%s is missing for model %s on extent %s; a run writes it for every scored model and extent", i, k, cutShape(model), cutShape(extent))
-			}
-		}
+	if w.missing != "" {
+		return errors.New(w.missing)
 	}
 	return nil
 }
+
+// RequiredFieldsRule is CheckShape's rule in one sentence, for messages
+// and the README.
+const RequiredFieldsRule = "every field a run always writes must be there (fields it may leave out, such as an input's sidecars, the preview or an extent's sorting bias, are optional; the sensitivity analysis is recomputed, and an unscored entry of scores needs only model, extent, scored and area_km2)"
+
+// shapeWalker is CheckShape's state: the decoder and the first missing
+// field found (reported once the walk has found no other problem).
+type shapeWalker struct {
+	dec     *json.Decoder
+	missing string
+}
+
+// unscoredRead are the fields of an unscored score that the report reads
+// (its row in the scores table).
+var unscoredRead = map[string]bool{"model": true, "extent": true, "scored": true, "area_km2": true}
+
+// recomputedField is the top-level field the report recomputes rather
+// than reads: no field inside it is required.
+const recomputedField = "sensitivity"
 
 // IsTopLevelShapeError reports whether err, from CheckShape, is about the
 // file as a whole (not a JSON object at all) rather than one of its fields.
@@ -75,18 +79,21 @@ func shapePath(path string) string {
 	return cutShape(path)
 }
 
-// walkShape reads one value at path and checks it against t (nil: any).
-func walkShape(dec *json.Decoder, path string, t reflect.Type, depth int) error {
+// walk reads one value at path and checks it against t (nil: any). It
+// returns the value when it is a plain one (a string, number, bool or
+// null), nil for an object or a list.
+func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, error) {
+	dec := w.dec
 	if depth > maxShapeDepth {
-		return fmt.Errorf("%s: lists and objects nested more than %d deep; a run writes at most a few levels", shapePath(path), maxShapeDepth)
+		return nil, fmt.Errorf("%s: lists and objects nested more than %d deep; a run writes at most a few levels", shapePath(path), maxShapeDepth)
 	}
 	tok, err := dec.Token()
 	if err != nil {
-		return jsonBroken(dec, path, err)
+		return nil, jsonBroken(dec, path, err)
 	}
 	for t != nil && t.Kind() == reflect.Pointer {
 		if tok == nil {
-			return nil
+			return nil, nil
 		}
 		t = t.Elem()
 	}
@@ -95,9 +102,9 @@ func walkShape(dec *json.Decoder, path string, t reflect.Type, depth int) error 
 	case t == nil:
 	case tok == nil:
 		if t.Kind() == reflect.Slice {
-			return nil // a nil list, as a run may write it
+			return nil, nil // a nil list, as a run may write it
 		}
-		return fmt.Errorf("%s is null; a run writes a value there", shapePath(path))
+		return nil, fmt.Errorf("%s is null; a run writes a value there", shapePath(path))
 	case t.Kind() == reflect.Struct:
 		want = "an object"
 	case t.Kind() == reflect.Slice || t.Kind() == reflect.Array:
@@ -115,75 +122,85 @@ func walkShape(dec *json.Decoder, path string, t reflect.Type, depth int) error 
 	case json.Delim:
 		if v == '{' {
 			if want != "" && want != "an object" {
-				return fmt.Errorf("%s holds an object; a run writes %s there", shapePath(path), want)
+				return nil, fmt.Errorf("%s holds an object; a run writes %s there", shapePath(path), want)
 			}
-			_, err := walkObject(dec, path, t, depth)
-			return err
+			return nil, w.object(path, t, depth)
 		}
 		if want != "" && want != "a list" {
-			return fmt.Errorf("%s holds a list; a run writes %s there", shapePath(path), want)
+			return nil, fmt.Errorf("%s holds a list; a run writes %s there", shapePath(path), want)
 		}
 		var elem reflect.Type
 		if t != nil {
 			elem = t.Elem()
 		}
-		for i := 0; dec.More(); i++ {
-			at := fmt.Sprintf("%s[%d]", path, i)
-			if err := walkShape(dec, at, elem, depth+1); err != nil {
-				return err
+		n := 0
+		for ; dec.More(); n++ {
+			at := fmt.Sprintf("%s[%d]", path, n)
+			if _, err := w.walk(at, elem, depth+1); err != nil {
+				return nil, err
 			}
 		}
-		return closeShape(dec, path)
+		if t != nil && t.Kind() == reflect.Array && n != t.Len() {
+			// A fixed-size list (the geotransform, the preview's
+			// bounds): decoding would fill the missing numbers with 0.
+			return nil, fmt.Errorf("%s holds %d values; a run writes %d there", shapePath(path), n, t.Len())
+		}
+		return nil, closeShape(dec, path)
 	case string:
 		if want != "" && want != "a string" {
-			return fmt.Errorf("%s holds the string %q; a run writes %s there", shapePath(path), cutShape(v), want)
+			return nil, fmt.Errorf("%s holds the string %q; a run writes %s there", shapePath(path), cutShape(v), want)
 		}
 	case bool:
 		if want != "" && want != "true or false" {
-			return fmt.Errorf("%s holds %v; a run writes %s there", shapePath(path), v, want)
+			return nil, fmt.Errorf("%s holds %v; a run writes %s there", shapePath(path), v, want)
 		}
 	case json.Number:
 		switch want {
 		case "", "a number":
 			if _, err := strconv.ParseFloat(string(v), 64); err != nil {
-				return fmt.Errorf("%s: %s is out of range", shapePath(path), cutShape(string(v)))
+				return nil, fmt.Errorf("%s: %s is out of range", shapePath(path), cutShape(string(v)))
 			}
 		case "a whole number":
 			if _, err := strconv.ParseInt(string(v), 10, 64); err != nil {
-				return fmt.Errorf("%s holds %s; a run writes a whole number there", shapePath(path), cutShape(string(v)))
+				return nil, fmt.Errorf("%s holds %s; a run writes a whole number there", shapePath(path), cutShape(string(v)))
 			}
 		default:
-			return fmt.Errorf("%s holds the number %s; a run writes %s there", shapePath(path), cutShape(string(v)), want)
+			return nil, fmt.Errorf("%s holds the number %s; a run writes %s there", shapePath(path), cutShape(string(v)), want)
 		}
 	}
-	return nil
+	return tok, nil
 }
 
-// walkObject reads the members of an object after its '{' and returns
-// its keys. A field left out is not refused: files of earlier builds of
-// the same schema lack fields later ones write, and an unscored score
-// may lack its placements.
-func walkObject(dec *json.Decoder, path string, t reflect.Type, depth int) (map[string]bool, error) {
-	fields := map[string]reflect.Type{}
+// object reads the members of an object after its '{' and, once it is
+// closed, notes the first required field it lacks (see CheckShape).
+func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
+	type field struct {
+		t        reflect.Type
+		required bool
+	}
+	fields := map[string]field{}
+	var order []string
 	if t != nil {
 		for i := 0; i < t.NumField(); i++ {
 			f := t.Field(i)
 			tag := f.Tag.Get("json")
-			name, _, _ := strings.Cut(tag, ",")
+			name, opts, _ := strings.Cut(tag, ",")
 			if !f.IsExported() || name == "-" {
 				continue
 			}
 			if name == "" {
 				name = f.Name
 			}
-			fields[name] = f.Type
+			fields[name] = field{f.Type, !strings.Contains(","+opts+",", ",omitempty,")}
+			order = append(order, name)
 		}
 	}
 	seen := map[string]bool{}
-	for dec.More() {
-		tok, err := dec.Token()
+	plain := map[string]json.Token{} // a score's model, extent and scored
+	for w.dec.More() {
+		tok, err := w.dec.Token()
 		if err != nil {
-			return nil, jsonBroken(dec, path, err)
+			return jsonBroken(w.dec, path, err)
 		}
 		key := tok.(string)
 		at := key
@@ -191,21 +208,41 @@ func walkObject(dec *json.Decoder, path string, t reflect.Type, depth int) (map[
 			at = path + "." + key
 		}
 		if seen[key] {
-			return nil, fmt.Errorf("%s is given twice; keep one", at)
+			return fmt.Errorf("%s is given twice; keep one", at)
 		}
 		seen[key] = true
-		var ft reflect.Type
-		if f, ok := fields[key]; ok {
-			ft = f
+		v, err := w.walk(at, fields[key].t, depth+1)
+		if err != nil {
+			return err
 		}
-		if err := walkShape(dec, at, ft, depth+1); err != nil {
-			return nil, err
+		if key == "model" || key == "extent" || key == "scored" {
+			plain[key] = v
 		}
 	}
-	if err := closeShape(dec, path); err != nil {
-		return nil, err
+	if err := closeShape(w.dec, path); err != nil {
+		return err
 	}
-	return seen, nil
+	if w.missing != "" || t == nil || path == recomputedField || strings.HasPrefix(path, recomputedField+".") {
+		return nil
+	}
+	isScore := t == reflect.TypeOf(Score{})
+	unscored := isScore && plain["scored"] != true
+	for _, name := range order {
+		if !fields[name].required || seen[name] || (unscored && !unscoredRead[name]) {
+			continue
+		}
+		at := name
+		if path != "" {
+			at = path + "." + name
+		}
+		w.missing = fmt.Sprintf("%s is missing", cutShape(at))
+		if m, e := plain["model"], plain["extent"]; isScore && m != nil && e != nil {
+			w.missing += fmt.Sprintf(" (model %s, extent %s)", cutShape(fmt.Sprint(m)), cutShape(fmt.Sprint(e)))
+		}
+		w.missing += "; a run always writes it"
+		return nil
+	}
+	return nil
 }
 
 // maxShapeDepth bounds the nesting of a results file (a run writes 4

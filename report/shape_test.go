@@ -1,6 +1,7 @@
 package report
 
 import (
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
@@ -18,9 +19,25 @@ func TestCheckShape(t *testing.T) {
 	if err := CheckShape(data); err != nil {
 		t.Fatalf("sample: %v", err)
 	}
-	// An unscored entry may lack its scores.
-	if err := CheckShape([]byte(`{"schema_version": 3, "scores": [{"model": "m", "extent": "e", "scored": false, "not_scored": "no test points inside this extent"}]}`)); err != nil {
+	// An unscored entry may lack its scores (the sample with its first
+	// score replaced).
+	withScore := func(score string) []byte {
+		var top map[string]json.RawMessage
+		if err := json.Unmarshal(data, &top); err != nil {
+			t.Fatal(err)
+		}
+		top["scores"] = json.RawMessage("[" + score + "]")
+		b, err := json.Marshal(top)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	if err := CheckShape(withScore(`{"model": "m", "extent": "e", "scored": false, "not_scored": "no test points inside this extent", "area_km2": 0}`)); err != nil {
 		t.Errorf("unscored entry without scores: %v", err)
+	}
+	if err := CheckShape(withScore(`{"model": "m", "extent": "base", "scored": true, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3, "test_points_outside": 0, "train_points_outside": 0, "auc_unweighted": 0.7, "auc_train": 0.7, "auc_se": 0.01, "auc_unweighted_se_delong": 0.01, "auc_boot_sd": 0.01, "test_point_ids": [], "placements": [], "placements_unweighted": [], "partial_roc": [], "thresholds": [], "boyce": null}`)); err == nil || !strings.Contains(err.Error(), "scores[0].auc is missing (model m, extent base)") {
+		t.Errorf("scored entry without auc: %v", err)
 	}
 	for _, c := range []struct {
 		name, text, want string
@@ -33,8 +50,9 @@ func TestCheckShape(t *testing.T) {
 		{"trailing", `{"schema_version": 3} {}`, "more JSON follows", false},
 		{"deep", `{"schema_version": 3, "x_note": ` + strings.Repeat("[", 40) + strings.Repeat("]", 40) + `}`, "nested more than", false},
 		{"array", `[1, 2]`, "the top level", true},
-		{"scored without auc", `{"schema_version": 3, "scores": [{"model": "m", "extent": "base", "scored": true, "auc_unweighted": 0.7, "auc_se": 0.01, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3}]}`,
-			"scores[0].auc is missing for model m on extent base", false},
+		{"scored without its counts", `{"schema_version": 3, "scores": [{"model": "m", "extent": "base", "scored": true, "auc_unweighted": 0.7, "auc_se": 0.01, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3}]}`,
+			"scores[0].test_points_outside is missing (model m, extent base)", false},
+		{"missing at the top level", `{"schema_version": 3}`, "software is missing", false},
 	} {
 		err := CheckShape([]byte(c.text))
 		if err == nil || !strings.Contains(err.Error(), c.want) {

@@ -18,6 +18,7 @@ const MaxPreviewSide = 4096
 // problem names the field (`scores[3].auc`), the model and extent, the
 // value and the allowed range. It checks:
 //
+//   - at least one model and one extent;
 //   - the grid size (positive), point counts (>= 0), models (unique names,
 //     finite ranges, floor share in [0,1]) and extents (unique ids, a known
 //     status, counts and areas >= 0, share in [0,1], duplicate_of naming
@@ -31,10 +32,15 @@ const MaxPreviewSide = 4096
 //   - points have a known role and status and finite coordinates;
 //   - the preview's size and encoded lengths match.
 func Validate(r *Results) error {
+	return validate("results.json", r)
+}
+
+// validate is Validate naming the file as file in its message.
+func validate(file string, r *Results) error {
 	if r == nil {
 		return fmt.Errorf("report: no results")
 	}
-	v := &validator{}
+	v := &validator{file: file}
 	v.settings(r.Settings)
 	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
 		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
@@ -45,6 +51,13 @@ func Validate(r *Results) error {
 		n    int
 	}{{"train", pc.Train}, {"test", pc.Test}, {"thinned", pc.Thinned}, {"outside_raster", pc.OutsideRaster}, {"nodata", pc.NoData}} {
 		v.nonNegInt("point_counts."+c.name, int64(c.n))
+	}
+	// A run scores at least one model on at least one extent (the base).
+	if len(r.Models) == 0 {
+		v.fail("models", "the list is empty; a run lists every model it scored")
+	}
+	if len(r.Extents) == 0 {
+		v.fail("extents", "the list is empty; a run lists every extent of its family, the base extent first")
 	}
 	models := map[string]bool{}
 	for i, m := range r.Models {
@@ -162,11 +175,15 @@ func Validate(r *Results) error {
 }
 
 // validator keeps the first problem found.
-type validator struct{ err error }
+// validator gathers Validate's first problem; file names the file in it.
+type validator struct {
+	file string
+	err  error
+}
 
 func (v *validator) fail(at, format string, args ...any) {
 	if v.err == nil {
-		v.err = fmt.Errorf("report: results.json %s: %s; the file was changed or damaged: rerun areasweep run to get a new one", at, fmt.Sprintf(format, args...))
+		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, at, fmt.Sprintf(format, args...))
 	}
 }
 

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -104,6 +105,20 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 				return fault.BadInput(errors.New("name the study table: areasweep batch TABLE --out DIR (areasweep batch --template prints an example)"))
 			}
 			opts.Table = args[0]
+			if c.Flags().Changed("only") {
+				// A scheduler passes --only "$AREASWEEP_STUDY": empty,
+				// it must not mean "every study" (each task would run
+				// the whole table).
+				for i, id := range opts.Only {
+					opts.Only[i] = strings.TrimSpace(id)
+				}
+				if len(opts.Only) == 0 || (len(opts.Only) == 1 && opts.Only[0] == "") {
+					return fault.BadInput(errors.New("--only is empty; name the study ids to run, comma-separated (is the variable that should hold them set?)"))
+				}
+				if slices.Contains(opts.Only, "") {
+					return fault.BadInput(fmt.Errorf("--only %q holds an empty id (a stray comma?); name the study ids, comma-separated", strings.Join(opts.Only, ",")))
+				}
+			}
 			if c.Flags().Changed("memory") {
 				m, err := parseBytes(memory)
 				if err != nil {
@@ -189,6 +204,10 @@ type batchStudy struct {
 	// inputs compares the input files a marker records with the files
 	// now; one for the whole batch, shared by its studies.
 	inputs *batch.Checker
+	// missing, when not nil, names an input file of the study that does
+	// not exist (with the table's file, line and column): the study
+	// fails without running, the others run.
+	missing error
 }
 
 // resolveBatch reads the table and resolves every row into run options,
@@ -226,11 +245,14 @@ func resolveBatch(o *BatchOptions) ([]*batchStudy, error) {
 			bad(flagColumn(err.Error()), err)
 			continue
 		}
-		if col, err := missingInput(&ro.Options); err != nil {
-			bad(col, err)
-			continue
-		}
 		st := &batchStudy{id: row.ID, line: row.Line, opts: ro, dir: ro.Out, inputs: check}
+		if col, err := missingInput(&ro.Options); err != nil {
+			// Not the table's fault alone (a file may be
+			// removed or not yet written): this study fails,
+			// the others still run. A SLURM plan refuses it
+			// (batchSlurm), before anything is submitted.
+			st.missing = &inputs.BatchError{File: b.File, Line: row.Line, Column: col, Study: row.ID, Err: err}
+		}
 		st.settings = batch.SettingsHash(canonicalSettings(ro.Options))
 		studies = append(studies, st)
 	}
@@ -485,6 +507,11 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 	if err != nil {
 		return fault.BadInput(err)
 	}
+	if o.Slurm.Enabled {
+		if err := slurmMissing(studies); err != nil {
+			return err
+		}
+	}
 	if err := o.Slurm.clientsPresent(); err != nil {
 		return fault.BadInput(err)
 	}
@@ -515,17 +542,17 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])
 		}
 	}
-	failed := 0
-	for _, err := range errs {
-		if err != nil {
-			failed++
-		}
-	}
 	if len(o.Only) == 0 {
 		if err := writeBatchSummary(o, studies, errs); err != nil {
 			return err
 		}
 		fmt.Fprintf(o.IO.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
+	}
+	failed := 0
+	for _, err := range errs {
+		if err != nil {
+			failed++
+		}
 	}
 	if failed > 0 {
 		return failedStudies(o, studies, errs, failed)
@@ -542,14 +569,18 @@ const maxFailuresShown = 20
 // and with --only, as in a scheduler task's log, no summary lists them).
 func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed int) error {
 	var ids, lines []string
-	stale := 0
+	stale, damaged := 0, 0
 	for i, err := range errs {
 		if err == nil {
 			continue
 		}
 		var se *staleError
-		if errors.As(err, &se) {
+		var de *damagedError
+		switch {
+		case errors.As(err, &se):
 			stale++
+		case errors.As(err, &de):
+			damaged++
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -565,10 +596,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	}
 	again := "running the same command again retries them"
 	switch {
+	case damaged == failed:
+		again = "each line says what to do"
 	case stale == failed:
 		again = "--force runs them again (they were made from other settings or inputs)"
-	case stale > 0:
-		again = "running the same command again retries them, but those made from other settings or inputs only with --force"
+	case stale > 0 || damaged > 0:
+		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
@@ -581,6 +614,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 type staleError struct{ msg string }
 
 func (e *staleError) Error() string { return e.msg }
+
+// damagedError is the error of a finished study whose results.json no
+// longer reads as a run wrote it: running the batch again skips it.
+type damagedError struct{ msg string }
+
+func (e *damagedError) Error() string { return e.msg }
 
 // failurePath is where a study's last error is kept, so that a summary
 // written later (by the scheduler's merge job) can show it.
@@ -669,6 +708,11 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
 	var todo []int
 	for i, st := range studies {
+		if st.missing != nil {
+			errs[i] = st.missing
+			p.line(st.id, "not run: "+oneLine(fault.UserText(st.missing)))
+			continue
+		}
 		s, why, err := st.state()
 		switch {
 		case err != nil:
@@ -860,7 +904,10 @@ func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error
 
 // writeBatchSummary loads each finished study's results.json (the same
 // bytes whether it ran now or earlier, so the summary does not depend on
-// --jobs or on resuming) and writes the summary into --out.
+// --jobs or on resuming) and writes the summary into --out. A finished
+// study whose results.json cannot be read as a run wrote it (edited or
+// damaged since) gets its error in errs: the summary and the exit status
+// count it as failed.
 func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) error {
 	rs := make([]report.StudyResult, len(studies))
 	for i, st := range studies {
@@ -871,9 +918,18 @@ func writeBatchSummary(o *BatchOptions, studies []*batchStudy, errs []error) err
 			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
-		r, err := report.Load(filepath.Join(st.dir, "results.json"))
+		// The checksum the study's marker recorded spares the shape
+		// walk of an unchanged file (report.LoadWritten).
+		sum := ""
+		if m, err := batch.ReadMarker(st.dir); err == nil && m != nil {
+			sum = m["results"]
+		}
+		r, err := report.LoadWritten(filepath.Join(st.dir, "results.json"), sum)
 		if err != nil {
-			rs[i].Err = errors.New(fault.UserText(err))
+			// Finished (its completion marker is there), so the same
+			// command would skip it again: say how to run it again.
+			errs[i] = &damagedError{fmt.Sprintf("%s; the study counts as finished: restore the file, or remove %s and run the same command with --force to run the study again", strings.TrimSuffix(fault.UserText(err), "."), batch.MarkerPath(st.dir))}
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
 		rs[i].Results, rs[i].Report = r, st.id+"/report.html"

@@ -218,11 +218,12 @@ func TestBatchInputReplaced(t *testing.T) {
 	os.Remove(tfw)
 	batchOK("added sidecar removed")
 
-	// A named input removed: refused with the table's problems.
+	// A named input removed: its study fails without running (the
+	// others run), exit 1.
 	os.Rename(occ, occ+".away")
 	_, se, code = runBin(t, "batch", table, "--out", out)
-	if code != 2 || !strings.Contains(se, occ+" does not exist") {
-		t.Errorf("occ.csv removed: exit %d, want 2 naming it: %s", code, se)
+	if code != 1 || !strings.Contains(se, occ+" does not exist") {
+		t.Errorf("occ.csv removed: exit %d, want 1 naming it: %s", code, se)
 	}
 	os.Rename(occ+".away", occ)
 

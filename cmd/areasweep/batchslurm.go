@@ -16,6 +16,7 @@ import (
 
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
@@ -135,6 +136,23 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 		p.MergeCommand = base + " --shards " + n + " --summary-only"
 	}
 	return p, nil
+}
+
+// slurmMissing refuses a SLURM plan for a table with a missing input
+// file, before anything is written: that study's task would fail, and
+// the plan is made again in a moment once the path is fixed.
+func slurmMissing(studies []*batchStudy) error {
+	var missing inputs.BatchErrors
+	for _, st := range studies {
+		var be *inputs.BatchError
+		if errors.As(st.missing, &be) {
+			missing = append(missing, be)
+		}
+	}
+	if len(missing) == 0 {
+		return nil
+	}
+	return fault.BadInput(fmt.Errorf("%w\nnothing was written or submitted: fix the paths (or remove the rows), then run this command again", missing))
 }
 
 // batchSlurm writes the plan and, with --submit, submits the unfinished

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"os"
 	"path/filepath"
 
 	"github.com/spf13/cobra"
@@ -56,6 +57,13 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 func demoRun(o *DemoOptions) error {
 	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
 		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers))
+	}
+	// --force replaces inputs/ as a whole (OpenDemo refuses names the
+	// demo does not write there); a folder of the user's that holds only
+	// such names (an occurrences.csv, a study.yaml) is theirs all the same.
+	in := filepath.Join(o.Out, "inputs")
+	if ents, err := os.ReadDir(in); err == nil && len(ents) > 0 && !scenario.IsDemoInputs(in) {
+		return fault.BadInput(fmt.Errorf("--out %s holds %s, which the demo did not write (its study.yaml is not the demo's); the demo replaces that folder as a whole, --force or not: move it, or choose another --out", o.Out, in))
 	}
 	d, err := outdir.OpenDemo(o.Out, o.Force, scenario.FileNames())
 	if err != nil {

@@ -1,7 +1,13 @@
 package main
 
 import (
+	"fmt"
+	"os"
+	"path/filepath"
+
 	"github.com/spf13/cobra"
+
+	"areasweep/cmd/internal/fault"
 )
 
 func newExtentsCmd(streams *IO, runF func(*RunOptions) error) *cobra.Command {
@@ -20,8 +26,34 @@ are checked but not used, and its help lists only the flags that shape the famil
     --region-buffers=-50,100,500 --out family-check
   areasweep extents --study study.yaml --out family-check --force`,
 		Args: cobra.NoArgs,
-		RunE: sweepE(&opts, runF),
+		RunE: func(c *cobra.Command, args []string) error {
+			if err := opts.resolve(c.Flags()); err != nil {
+				return fault.BadInput(err)
+			}
+			if err := keepScoredResults(&opts); err != nil {
+				return err
+			}
+			if runF != nil {
+				return runF(&opts)
+			}
+			return sweep(&opts, nil)
+		},
 	}
 	bindSweepFlags(cmd.Flags(), &opts, false)
 	return cmd
+}
+
+// keepScoredResults refuses extents --force on an --out that holds a
+// scored run's results: --force replaces areasweep's entries as a set,
+// whether or not the new run writes them, so the family alone would
+// remove results.json, scores.csv and the report without writing any.
+func keepScoredResults(o *RunOptions) error {
+	if !o.Force {
+		return nil // a non-empty --out is refused anyway
+	}
+	res := filepath.Join(o.Out, "results.json")
+	if st, err := os.Lstat(res); err == nil && !st.IsDir() {
+		return fault.BadInput(fmt.Errorf("--out %s holds a scored run's results (%s); extents writes only the family, and with --force it would remove them with areasweep's other files there: choose another --out, e.g. %s", o.Out, res, filepath.Clean(o.Out)+"-extents"))
+	}
+	return nil
 }

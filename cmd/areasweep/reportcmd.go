@@ -6,7 +6,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"strings"
+	"time"
 
 	"github.com/spf13/cobra"
 
@@ -27,6 +27,8 @@ type ReportOptions struct {
 	IO    *IO
 	Dir   string
 	Force bool
+	// Quiet drops the log lines on standard error, as run's --quiet does.
+	Quiet bool
 }
 
 func newReportCmd(streams *IO, runF func(*ReportOptions) error) *cobra.Command {
@@ -49,6 +51,7 @@ with --force.`,
 		},
 	}
 	cmd.Flags().BoolVar(&opts.Force, "force", false, "replace the report files already in DIR")
+	cmd.Flags().BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
 	return cmd
 }
 
@@ -83,25 +86,23 @@ func reportRun(o *ReportOptions) error {
 	if st, err := os.Lstat(filepath.Join(o.Dir, "figures")); err == nil && !st.IsDir() {
 		return fault.BadInput(fmt.Errorf("%s is a file; the report writes its figures into a folder of that name: move the file, then run again", filepath.Join(o.Dir, "figures")))
 	}
-	data, err := os.ReadFile(path)
+	if err := notFileInTheWay(o.Dir, "report.html", "methods.md"); err != nil {
+		return err
+	}
+	start := time.Now()
+	r, err := report.Load(path) // shape, required fields, schema version, values
 	if err != nil {
-		return fault.BadInput(fmt.Errorf("%s cannot be read: %v", path, outdir.Cause(err)))
-	}
-	shapeErr := report.CheckShape(data)
-	data = nil
-	r, err := report.Load(path)
-	if err != nil && (shapeErr == nil || strings.Contains(err.Error(), "schema_version") || report.IsTopLevelShapeError(shapeErr)) {
-		return fault.BadInput(err) // not a JSON object at all, or of another schema
-	}
-	if shapeErr != nil {
-		return fault.BadInput(fmt.Errorf("report: %s is not a results file written by areasweep as it stands (%v); the file was changed or damaged: rerun areasweep run to get a new one", path, shapeErr))
-	}
-	if err := report.Validate(r); err != nil {
+		if errors.Is(err, fs.ErrNotExist) || errors.Is(err, fs.ErrPermission) {
+			return fault.BadInput(fmt.Errorf("%s cannot be read: %v", path, outdir.Cause(err)))
+		}
 		return fault.BadInput(err)
 	}
+	o.logf("results.json read and checked in %.2f s", time.Since(start).Seconds())
+	start = time.Now()
 	if err := report.Analyze(r); err != nil {
 		return fault.BadInput(err)
 	}
+	o.logf("analysis in %.2f s", time.Since(start).Seconds())
 	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
 	stoppedNote.Store(&note)
 	st2, err := outdir.Stage(o.Dir)
@@ -109,13 +110,53 @@ func reportRun(o *ReportOptions) error {
 		return fault.BadInput(fmt.Errorf("%s: cannot write in it (%v); re-render the report of a folder you can write to, e.g. a copy of it", o.Dir, outdir.Cause(err)))
 	}
 	defer st2.Abort()
+	start = time.Now()
 	if err := report.Write(st2.Path, r); err != nil {
 		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
+	}
+	o.logf("report written in %.2f s", time.Since(start).Seconds())
+	// A folder where a figure file goes (the names are known once
+	// drawn) would stop the move half-way: refuse it before moving.
+	figs, err := os.ReadDir(filepath.Join(st2.Path, "figures"))
+	if err != nil {
+		return fmt.Errorf("reading the drawn figures: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
+	}
+	names := make([]string, len(figs))
+	for i, f := range figs {
+		names[i] = f.Name()
+	}
+	if err := notFileInTheWay(filepath.Join(o.Dir, "figures"), names...); err != nil {
+		return err
 	}
 	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir) }); err != nil {
 		return fmt.Errorf("moving the report into %s failed: %s", o.Dir, outdir.Cause(err))
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
+	return nil
+}
+
+// logf writes one log line on standard error, unless --quiet.
+func (o *ReportOptions) logf(format string, args ...any) {
+	if !o.Quiet {
+		fmt.Fprintf(o.IO.ErrOut, format+"\n", args...)
+	}
+}
+
+// notFileInTheWay refuses when one of names in dir exists and is not a
+// regular file or a link (a folder, a FIFO, ...): the report replaces a
+// file of that name, and renaming onto a folder fails half-way through
+// the report's files.
+func notFileInTheWay(dir string, names ...string) error {
+	for _, n := range names {
+		p := filepath.Join(dir, n)
+		if st, err := os.Lstat(p); err == nil && !st.Mode().IsRegular() && st.Mode()&fs.ModeSymlink == 0 {
+			what := "a folder"
+			if !st.IsDir() {
+				what = "not a regular file"
+			}
+			return fault.BadInput(fmt.Errorf("%s is %s; the report writes a file of that name: move it out of the way, then run again (nothing was changed)", p, what))
+		}
+	}
 	return nil
 }
 

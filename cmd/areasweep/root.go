@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"path/filepath"
 	"regexp"
 	"runtime/debug"
@@ -18,6 +17,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/stopsig"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
 )
@@ -80,12 +80,12 @@ func init() {
 // removes the run's staging folder and exits with 128+N; a panic is
 // recovered, reported in one line and its trace written to a run.log.
 func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
-	extent.Configure()
-	gdalmsg.Install()
-	sigs := make(chan os.Signal, 1)
-	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	// The signals have been caught since the program's first package
+	// inits (stopsig); one caught meanwhile is handled here at once,
+	// before GDAL is set up.
+	sigs := stopsig.Listen()
 	stop := make(chan struct{})
-	defer func() { signal.Stop(sigs); close(stop) }()
+	defer func() { stopsig.Stop(); close(stop) }()
 	go func() {
 		select {
 		case s := <-sigs:
@@ -96,6 +96,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		case <-stop:
 		}
 	}()
+	extent.Configure()
+	gdalmsg.Install()
 	defer func() {
 		if r := recover(); r != nil {
 			outdir.AbortAll()
@@ -224,9 +226,14 @@ reports how much of each score comes from the extent rather than from the model.
 			return nil
 		}
 	}
-	for _, c := range root.Commands() {
-		c.Args = wrapArgs(c.Args)
+	var wrap func(cs []*cobra.Command)
+	wrap = func(cs []*cobra.Command) {
+		for _, c := range cs {
+			c.Args = wrapArgs(c.Args)
+			wrap(c.Commands()) // completion's shells
+		}
 	}
+	wrap(root.Commands())
 	return root
 }
 
@@ -248,6 +255,14 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 			return nil
 		case strings.Contains(err.Error(), "--help"): // the command's own message
 			return fault.BadInput(err)
+		case strings.HasPrefix(err.Error(), "unknown command ") && !c.HasSubCommands() && len(args) > 0:
+			// cobra calls a stray word an unknown command even where
+			// the command has none: most often a value without its flag.
+			hint := ""
+			if c.Flags().Lookup("out") != nil {
+				hint = ": give each value after its flag, e.g. --out DIR"
+			}
+			return fault.BadInput(fmt.Errorf("'%s' takes no arguments, got %q%s (see '%s --help')", c.CommandPath(), args[0], hint, c.CommandPath()))
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
 			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 		}

@@ -361,7 +361,7 @@ for name, M in MODELS:
     valid = ~np.isnan(M)
     vmin, vmax = float(np.nanmin(M)), float(np.nanmax(M))
     floor = float(AREA[valid & (M == vmin)].sum() / AREA[valid].sum())
-    model_info.append({"name": name, "path": f"models/{name}.tif", "value_min": r12(vmin),
+    model_info.append({"name": name, "path": f"models/{name}.tif", "role": "model", "value_min": r12(vmin),
                        "value_max": r12(vmax), "floor_share": r12(floor)})
     trv = np.array([M[q["row"], q["col"]] for q in train])
     tev = np.array([M[q["row"], q["col"]] for q in test])
@@ -439,6 +439,7 @@ for name, M in MODELS:
                         "p_binomial": r12(stats.binom.sf(succ - 1, len(pv), af))})
         scores.append({**base, "scored": True, "cells": ext["cells"], "area_km2": ext["area_km2"],
                        "test_points": int(len(pv)), "train_points": int(len(ptr)),
+                       "test_points_outside": 0, "train_points_outside": 0,
                        "auc": r12(auc), "auc_unweighted": r12(auc_unw), "auc_train": r12(auc_tr),
                        "auc_se": r12(auc_se), "auc_unweighted_se_delong": r12(math.sqrt(delong_var(Fu, pv, bv))),
                        "auc_boot_sd": r12(paired_auc.std(ddof=1)),
@@ -593,10 +594,11 @@ results = {
     "seed": 20240611,
     "settings": {"region_buffers_km": [50, 100, 200], "point_buffers_km": [25, 100, 400],
                  "point_buffers_all_points": False, "hull_buffers_km": [0],
-                 "ecoregion_min_points": 5, "ecoregion_field": "ECO_NAME", "e": E_LIST,
+                 "ecoregion_min_points": 5, "ecoregion_field": "ECO_NAME", "ecoregion_clip": False,
+                 "occurrences_crs": "", "extra_extents": None, "e": E_LIST,
                  "iterations": ITER, "resample_fraction": FRAC, "fixed_thresholds": FIXED,
                  "thin_per_cell": True, "boyce_window": BOYCE_WINDOW, "boyce_steps": BOYCE_STEPS,
-                 "paired_resamples": PAIRED_B, "tolerance_auc": TOL["auc"],
+                 "distance_null": False, "paired_resamples": PAIRED_B, "tolerance_auc": TOL["auc"],
                  "tolerance_partial_roc": TOL["partial_roc"], "tolerance_omission": TOL["omission"],
                  "tolerance_boyce": TOL["boyce"]},
     "inputs": [{"role": f"model:{n}", "path": f"models/{n}.tif", "sha256": sha(n)} for n, _ in MODELS]

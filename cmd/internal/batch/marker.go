@@ -62,7 +62,10 @@ func ReadMarker(dir string) (Marker, error) {
 		return nil, nil
 	}
 	if err != nil {
-		return nil, fmt.Errorf("batch: reading the completion marker: %w", err)
+		if st, serr := os.Stat(dir); serr == nil && !st.IsDir() {
+			return nil, fmt.Errorf("%s is a file, not a folder: the study's outputs go into a folder of that name; move or rename the file, then run again", dir)
+		}
+		return nil, fmt.Errorf("batch: reading the completion marker %s: %w", MarkerPath(dir), err)
 	}
 	defer f.Close()
 	m := Marker{}

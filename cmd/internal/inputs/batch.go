@@ -383,15 +383,23 @@ func (p *batchParser) parseYAML(data []byte) {
 			p.add(item.Line, "", "", fmt.Errorf("%w: each study is a mapping with id: and study keys, found %s", ErrBatchSyntax, kindName(item)))
 			continue
 		}
-		id, idLine := "", item.Line
+		id, idLine, idSeen, idTwice := "", item.Line, false, 0
 		for i := 0; i+1 < len(item.Content); i += 2 {
 			if k := deref(item.Content[i]); k.Kind == yaml.ScalarNode && k.Value == "id" {
+				if idSeen {
+					idTwice = k.Line // the first stays: mapping() skips "id"
+					continue
+				}
+				idSeen = true
 				v := deref(item.Content[i+1])
 				idLine = k.Line
 				if v.Kind == yaml.ScalarNode {
 					id = v.Value
 				}
 			}
+		}
+		if idTwice > 0 {
+			p.add(idTwice, "id", id, fmt.Errorf("%w: %q already given at line %d; keep only one", ErrBatchColumn, "id", idLine))
 		}
 		if len(p.b.Studies) == MaxBatchStudies {
 			p.add(item.Line, "", "", fmt.Errorf("%w: more than %d studies; split the table", ErrBatchSyntax, MaxBatchStudies))

@@ -209,6 +209,14 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		if len(visible(entries)) > 0 && !force {
 			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
 		}
+		for _, n := range []string{"figures", "inputs"} {
+			if n == "inputs" && !demo || shard {
+				continue
+			}
+			if st, err := os.Lstat(filepath.Join(d.abs, n)); err == nil && !st.IsDir() {
+				return nil, fault.BadInput(fmt.Errorf("--out %s holds %s, a file where areasweep writes a folder of that name; move or rename it, or choose another --out", out, filepath.Join(d.Out, n)))
+			}
+		}
 		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
 			return nil, fault.BadInput(foreignError(out, found))
 		}

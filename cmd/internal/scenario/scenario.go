@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -30,6 +31,24 @@ const (
 // FileNames are the names of the files Write creates in its folder.
 func FileNames() []string {
 	return []string{fileGood, fileCoarse, fileOccurrences, fileRegion, fileEcoregions, fileStudy}
+}
+
+// studyMark is how the demo's study file begins (studyYAML).
+const studyMark = "# Invented demo (scenario seed "
+
+// IsDemoInputs reports whether the folder dir holds a demo's inputs: its
+// study file is there and begins as the demo writes it. A folder of the
+// user's that happens to hold files of the same names (an
+// occurrences.csv, a study.yaml) is not one.
+func IsDemoInputs(dir string) bool {
+	f, err := os.Open(filepath.Join(dir, fileStudy))
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	b := make([]byte, len(studyMark))
+	_, err = io.ReadFull(f, b)
+	return err == nil && string(b) == studyMark
 }
 
 // Files lists what Write produced (absolute paths).
@@ -149,7 +168,7 @@ func occurrencesCSV(recs []record) []byte {
 // studyYAML is the study file; its keys mirror the command-line flags and its
 // paths are relative to the file.
 func studyYAML(seed uint64) []byte {
-	return []byte(`# Invented demo (scenario seed ` + strconv.FormatUint(seed, 10) + `): ` + Species + `, its landscape and records are made up.
+	return []byte(studyMark + strconv.FormatUint(seed, 10) + `): ` + Species + `, its landscape and records are made up.
 model:
   - good=` + fileGood + `
   - coarse=` + fileCoarse + `

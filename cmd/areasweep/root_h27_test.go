@@ -1,0 +1,30 @@
+package main
+
+import (
+	"strings"
+	"testing"
+)
+
+// TestStrayArgument: a word given to a command that takes none (most
+// often a value whose flag was left out) is named as such, with the
+// command's help, instead of cobra's "unknown command" for a command that
+// has no sub-commands; completion's shells included.
+func TestStrayArgument(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"extents", "foo"}, `'areasweep extents' takes no arguments, got "foo": give each value after its flag, e.g. --out DIR (see 'areasweep extents --help')`},
+		{[]string{"demo", "/tmp/x"}, `'areasweep demo' takes no arguments, got "/tmp/x": give each value after its flag`},
+		{[]string{"version", "x"}, `'areasweep version' takes no arguments, got "x" (see 'areasweep version --help')`},
+		{[]string{"completion", "bash", "zsh"}, `'areasweep completion bash' takes no arguments, got "zsh" (see 'areasweep completion bash --help')`},
+		// Commands with sub-commands keep cobra's wording.
+		{[]string{"completion", "tcsh"}, `unknown command "tcsh" for "areasweep completion" (see 'areasweep completion --help')`},
+	} {
+		var out, errOut strings.Builder
+		code := Main(c.args, nil, &out, &errOut)
+		if code != exitBadInput || !strings.Contains(errOut.String(), c.want) {
+			t.Errorf("%v: exit %d, stderr %q; want 2 and %q", c.args, code, errOut.String(), c.want)
+		}
+	}
+}
