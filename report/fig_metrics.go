@@ -16,6 +16,7 @@ import (
 // metricPoint is one marker of the score-against-area figure.
 type metricPoint struct {
 	area, v float64
+	chain   string // the extent's nested chain, "" for none
 	lo, hi  float64 // the bar, when bar is true
 	bar     bool
 }
@@ -30,6 +31,10 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 	for _, id := range r.Sensitivity.ScoredExtents {
 		scored[id] = true
 	}
+	chainOf := map[string]string{}
+	for _, e := range r.Extents {
+		chainOf[e.ID] = e.Chain
+	}
 	var pts []metricPoint
 	for i := range r.Scores {
 		sc := &r.Scores[i]
@@ -38,6 +43,7 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 		}
 		if p, ok := metricPointOf(m, sc, r.Settings.PairedResamples); ok {
 			p.area = sc.AreaKm2
+			p.chain = chainOf[sc.Extent]
 			pts = append(pts, p)
 		}
 	}
@@ -129,8 +135,36 @@ type metricPanel struct {
 	m   MetricInfo
 	pts [][]metricPoint // per model, in Sensitivity.ModelNames order
 	// nulls holds each null's values against the extent area (km²), in
-	// Results.Models order: drawn as grey dotted reference lines.
-	nulls []plotter.XYs
+	// Results.Models order: drawn as grey dotted reference lines;
+	// nullChains the nested chain of each value's extent.
+	nulls      []plotter.XYs
+	nullChains [][]string
+}
+
+// chainLines returns, of the points xys with the nested chains chains
+// (by area), one polyline per chain of at least two points, in order of
+// each chain's first point: a line joins the members of one chain, whose
+// areas grow with a single setting, and never an extent of one kind to
+// one of another, where a zigzag would read as noise.
+func chainLines(xys plotter.XYs, chains []string) []plotter.XYs {
+	var order []string
+	by := map[string]plotter.XYs{}
+	for i, xy := range xys {
+		if chains[i] == "" {
+			continue
+		}
+		if _, ok := by[chains[i]]; !ok {
+			order = append(order, chains[i])
+		}
+		by[chains[i]] = append(by[chains[i]], xy)
+	}
+	var out []plotter.XYs
+	for _, ch := range order {
+		if len(by[ch]) >= 2 {
+			out = append(out, by[ch])
+		}
+	}
+	return out
 }
 
 // metricPanels returns the metrics that have at least one point, and the
@@ -150,8 +184,9 @@ func metricPanels(r *Results) ([]metricPanel, float64) {
 			}
 		}
 		for _, nm := range nulls(r) {
-			xys := nullSeries(r, m, nm.Name)
+			xys, chains := nullSeries(r, m, nm.Name)
 			pn.nulls = append(pn.nulls, xys)
+			pn.nullChains = append(pn.nullChains, chains)
 			for _, xy := range xys {
 				any = true
 				maxArea = math.Max(maxArea, xy.X)
@@ -182,10 +217,12 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 		// bars do not overlap.
 		shift := math.Pow(2, 0.05*(float64(i)-float64(nm-1)/2))
 		xys := make(plotter.XYs, len(pts))
+		chains := make([]string, len(pts))
 		var ep errPoints
 		for q, pt := range pts {
 			x := pt.area / div * shift
 			xys[q] = plotter.XY{X: x, Y: pt.v}
+			chains[q] = pt.chain
 			lo, hi = math.Min(lo, pt.v), math.Max(hi, pt.v)
 			amin, amax = math.Min(amin, pt.area/div), math.Max(amax, pt.area/div)
 			if pt.bar {
@@ -194,13 +231,19 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 				lo, hi = math.Min(lo, pt.lo), math.Max(hi, pt.hi)
 			}
 		}
-		l, sc, err := plotter.NewLinePoints(xys)
+		for _, line := range chainLines(xys, chains) {
+			l, err := plotter.NewLine(line)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
+			p.Add(l)
+		}
+		sc, err := plotter.NewScatter(xys)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure metrics: %w", err)
 		}
-		l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
 		sc.GlyphStyle = markerStyle(i)
-		p.Add(l)
 		if len(ep.XYs) > 0 {
 			eb, err := plotter.NewYErrorBars(ep)
 			if err != nil {
@@ -222,12 +265,21 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 			lo, hi = math.Min(lo, xy.Y), math.Max(hi, xy.Y)
 			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
 		}
-		l, sc, err := plotter.NewLinePoints(pts)
+		ls, gs := nullLineStyle(j)
+		for _, line := range chainLines(pts, pn.nullChains[j]) {
+			l, err := plotter.NewLine(line)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			l.LineStyle = ls
+			p.Add(l)
+		}
+		sc, err := plotter.NewScatter(pts)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure metrics: %w", err)
 		}
-		l.LineStyle, sc.GlyphStyle = nullLineStyle(j)
-		p.Add(l, sc)
+		sc.GlyphStyle = gs
+		p.Add(sc)
 	}
 	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
 	p.X.Min, p.X.Max = amin/1.25, amax*1.25
@@ -293,6 +345,7 @@ type errPoints struct {
 func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
+		"a line joins the extents of one nested chain (extents in no chain are markers alone), so a family of several kinds has one line per chain and model. " +
 		"every score uses the test records inside that extent (counts in the Extents table). "
 	if st.PairedResamples >= 2 {
 		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d full-size paired resamples of the test records inside the extent, "+

@@ -27,6 +27,47 @@ func rocExtents(r *Results) []Extent {
 	return es
 }
 
+// rocMaxCurves is the most curves a ROC panel draws (our choice: past a
+// dozen, curves of neighbouring areas share a colour and cover each
+// other).
+const rocMaxCurves = 12
+
+// rocShown returns the extents whose curves the ROC panels draw, in order
+// of area, and whether that is fewer than es (all usable extents, by
+// area). Up to rocMaxCurves extents, every one; past that, the base
+// region, the whole raster, and of each nested chain (and of the extents
+// in no chain) its smallest, middle and largest member, so that the panel
+// still spans every kind and the whole range of areas.
+func rocShown(es []Extent) ([]Extent, bool) {
+	if len(es) <= rocMaxCurves {
+		return es, false
+	}
+	keep := map[string]bool{}
+	byChain := map[string][]string{}
+	var chains []string
+	for _, e := range es {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep[e.ID] = true
+			continue
+		}
+		if _, ok := byChain[e.Chain]; !ok {
+			chains = append(chains, e.Chain)
+		}
+		byChain[e.Chain] = append(byChain[e.Chain], e.ID)
+	}
+	for _, ch := range chains {
+		ids := byChain[ch]
+		keep[ids[0]], keep[ids[len(ids)/2]], keep[ids[len(ids)-1]] = true, true, true
+	}
+	var out []Extent
+	for _, e := range es {
+		if keep[e.ID] {
+			out = append(out, e)
+		}
+	}
+	return out, len(out) < len(es)
+}
+
 func findCurve(r *Results, model, extent string) *Curve {
 	for i := range r.Curves {
 		if r.Curves[i].Model == model && r.Curves[i].Extent == extent {
@@ -64,7 +105,8 @@ func rocFigure(r *Results) figure {
 	if len(r.Settings.E) > 0 {
 		e = r.Settings.E[0]
 	}
-	es := rocExtents(r)
+	all := rocExtents(r)
+	es, thinned := rocShown(all)
 	amin, amax := 0.0, 0.0
 	if len(es) > 0 {
 		amin, amax = es[0].AreaKm2, es[len(es)-1].AreaKm2
@@ -83,6 +125,11 @@ func rocFigure(r *Results) figure {
 		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
 		"The selector under the figures names each curve.", perNull, fmtG(e))
+	if thinned {
+		f.Caption += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
+			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+
+			"the selector under the figures draws any of the %d.", len(all), rocMaxCurves, len(es), len(all))
+	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
 	band := color.Gray{Y: 225}
 	var items []legendItem
@@ -152,7 +199,11 @@ func rocFigure(r *Results) figure {
 		if amax > 0 {
 			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
 			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
-			drawAreaBar(barC, amin, amax)
+			var marks []float64
+			for _, ex := range es {
+				marks = append(marks, ex.AreaKm2)
+			}
+			drawAreaBar(barC, amin, amax, marks)
 		}
 		return nil
 	}
@@ -160,8 +211,9 @@ func rocFigure(r *Results) figure {
 }
 
 // drawAreaBar draws a vertical colour bar of the area ramp from lo to hi
-// km² (log scale) in c.
-func drawAreaBar(c draw.Canvas, lo, hi float64) {
+// km² (log scale) in c, with a short tick beside it at each of marks (the
+// areas of the curves drawn).
+func drawAreaBar(c draw.Canvas, lo, hi float64, marks []float64) {
 	div, unit := areaAxis(hi)
 	lo, hi = lo/div, hi/div
 	if !(hi > lo) {
@@ -185,4 +237,11 @@ func drawAreaBar(c draw.Canvas, lo, hi float64) {
 	da := p.DataCanvas(bc)
 	bc.Max.X -= (da.Max.X - da.Min.X) - 4*vg.Millimeter
 	p.Draw(bc)
+	da = p.DataCanvas(bc)
+	_, trY := p.Transforms(&da)
+	ls := lineStyle(ink, 0.5, nil)
+	for _, a := range marks {
+		y := trY(a / div)
+		c.StrokeLine2(ls, da.Max.X, y, da.Max.X+vg.Points(2.5), y)
+	}
 }
