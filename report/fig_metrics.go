@@ -16,7 +16,7 @@ import (
 // metricPoint is one marker of the score-against-area figure.
 type metricPoint struct {
 	area, v float64
-	chain   string // the extent's nested chain, "" for none
+	chain   string  // the extent's nested chain, "" for none
 	lo, hi  float64 // the bar, when bar is true
 	bar     bool
 }
