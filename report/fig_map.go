@@ -5,6 +5,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -183,8 +184,37 @@ type mapKey struct {
 	styles []draw.LineStyle // per member of the group, in its order
 	named  []legendItem     // the anchors, then the named members
 	ramp   *rampKey         // nil when no member is on the ramp
-	// order is the order the outlines are drawn in: ramp, named, anchors.
-	order []int
+	// order is the order the outlines are drawn in: ramp (by value),
+	// named, anchors; thinned is the number of members on the ramp not
+	// drawn (rampDrawn).
+	order   []int
+	thinned int
+}
+
+// maxRampOutlines is the most outlines a panel draws on its ramp (our
+// choice: at the maps' print size, buffers of a study's usual spacing
+// more than about 20 to a panel leave no gap between their lines and
+// hide the points under them).
+const maxRampOutlines = 20
+
+// rampDrawn returns which of n members on a ramp, in order of value, a
+// panel draws: all up to maxRampOutlines; past that every k-th from the
+// first, k = ceil((n-1)/(maxRampOutlines-1)), and always the last, so the
+// drawn ones span the whole ramp evenly.
+func rampDrawn(n int) []int {
+	if n <= maxRampOutlines {
+		out := make([]int, n)
+		for i := range out {
+			out[i] = i
+		}
+		return out
+	}
+	k := (n - 1 + maxRampOutlines - 2) / (maxRampOutlines - 1)
+	var out []int
+	for i := 0; i < n-1; i += k {
+		out = append(out, i)
+	}
+	return append(out, n-1)
 }
 
 // rampKey is the colour bar of a panel's outlines on the ramp: the value
@@ -243,27 +273,29 @@ func mapKeyOf(r *Results, g mapGroup) mapKey {
 			rk.label, rk.log = "extent area (km²)", true
 			val = func(e Extent) float64 { return e.AreaKm2 }
 		}
+		vals := map[int]float64{}
 		for _, q := range rest {
 			v := val(r.Extents[g.members[q]])
 			if rk.log && !(v > 0) {
-				continue
+				v = math.SmallestNonzeroFloat64 // no area: the ramp's dark end
+			} else {
+				rk.lo, rk.hi = math.Min(rk.lo, v), math.Max(rk.hi, v)
 			}
-			rk.lo, rk.hi = math.Min(rk.lo, v), math.Max(rk.hi, v)
-			rk.marks = append(rk.marks, v)
+			vals[q] = v
 		}
-		for _, q := range rest {
-			v := val(r.Extents[g.members[q]])
-			t := 0.0
-			if !rk.log || v > 0 {
-				t = rk.t(v)
-			}
-			k.styles[q] = lineStyle(areaRamp(t), rampWidth, nil)
-		}
-		if len(rk.marks) == 0 {
+		if rk.lo > rk.hi {
 			rk.lo, rk.hi = 1, 1
 		}
+		sort.SliceStable(rest, func(a, b int) bool { return vals[rest[a]] < vals[rest[b]] })
+		for _, q := range rest {
+			k.styles[q] = lineStyle(areaRamp(math.Max(0, rk.t(vals[q]))), rampWidth, nil)
+		}
+		for _, i := range rampDrawn(len(rest)) {
+			k.order = append(k.order, rest[i])
+			rk.marks = append(rk.marks, vals[rest[i]])
+		}
 		k.ramp = rk
-		k.order = append(k.order, rest...)
+		k.thinned = len(rest) - len(rk.marks)
 	default:
 		named = rest
 	}
@@ -754,11 +786,20 @@ func mapFigure(r *Results) (figure, bool) {
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
 	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
 		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
-		"on the panel's colour bar (dark = nearest; a tick above the bar for each buffer), so that any number of them keeps one key. "+
+		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
 		"Outlines follow the coarse copy's cells, so they are drawn to within one of its cells.", maxNamed, model, model)
+	thinned := 0
+	for _, g := range groups {
+		thinned += mapKeyOf(r, g).thinned
+	}
+	if thinned > 0 {
+		f.Caption += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
+			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
+	}
+	f.Caption += " Outlines are drawn over the training and test points and under the omission marks."
 	for _, l := range marks.layers {
 		if strings.HasSuffix(l.label, " marks)") {
 			f.Caption += fmt.Sprintf(" A layer of more than %d points is drawn with one mark where several fall within 1/%d of the map's width (the key gives both counts).", crowdedMarks, markLattice)

@@ -209,6 +209,14 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 	lo, hi := math.Inf(1), math.Inf(-1)
 	amin, amax := math.Inf(1), math.Inf(-1)
 	nm := len(pn.pts)
+	most := 0
+	for _, pts := range pn.pts {
+		most = max(most, len(pts))
+	}
+	for _, xys := range pn.nulls {
+		most = max(most, len(xys))
+	}
+	scale := markerScale(most)
 	for i, pts := range pn.pts {
 		if len(pts) == 0 {
 			continue
@@ -244,13 +252,14 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 			return nil, fmt.Errorf("report: figure metrics: %w", err)
 		}
 		sc.GlyphStyle = markerStyle(i)
+		sc.GlyphStyle.Radius *= scale
 		if len(ep.XYs) > 0 {
 			eb, err := plotter.NewYErrorBars(ep)
 			if err != nil {
 				return nil, fmt.Errorf("report: figure metrics: %w", err)
 			}
 			eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
-			eb.CapWidth = vg.Points(3)
+			eb.CapWidth = vg.Points(3) * scale
 			p.Add(eb)
 		}
 		p.Add(sc)
@@ -266,6 +275,7 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
 		}
 		ls, gs := nullLineStyle(j)
+		gs.Radius *= scale
 		for _, line := range chainLines(pts, pn.nullChains[j]) {
 			l, err := plotter.NewLine(line)
 			if err != nil {
@@ -283,6 +293,8 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 	}
 	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
 	p.X.Min, p.X.Max = amin/1.25, amax*1.25
+	// The axis is the panel less the value axis's labels and padding.
+	p.X.Tick.Marker = logTicks{W: titleW - vg.Points(10), Pt: minFontPt}
 	return p, nil
 }
 
@@ -329,6 +341,19 @@ func metricsFigure(r *Results) figure {
 		return nil
 	}
 	return f
+}
+
+// markerScale is the factor on the markers' size (and the bars' caps) of
+// a panel whose longest series has n points: 1 up to 20 points, then
+// shrinking as sqrt(20/n), so that a marker's area shrinks as the points
+// crowd, down to half the size at 80 points or more (our choice: from 60
+// extents on the usual 1.5 decades of area, full-size markers merged into
+// one band and the null's open circles into a grey blob).
+func markerScale(n int) vg.Length {
+	if n <= 20 {
+		return 1
+	}
+	return vg.Length(max(0.5, math.Sqrt(20/float64(n))))
 }
 
 // markerStyle is model i's marker.
