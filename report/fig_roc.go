@@ -27,10 +27,10 @@ func rocExtents(r *Results) []Extent {
 	return es
 }
 
-// rocMaxCurves is the most curves a ROC panel draws (our choice: past a
-// dozen, curves of neighbouring areas share a colour and cover each
-// other).
-const rocMaxCurves = 12
+// rocMaxCurves is the most curves a ROC panel draws (our choice: past
+// about 16, curves of neighbouring areas share a colour and cover each
+// other; a 13-extent family keeps every curve).
+const rocMaxCurves = 16
 
 // rocShown returns the extents whose curves the ROC panels draw, in order
 // of area, and whether that is fewer than es (all usable extents, by
