@@ -621,9 +621,9 @@ func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
 		if len(l.xys) == 0 {
 			continue
 		}
-		styles := []draw.GlyphStyle{l.gs}
+		styles := []draw.GlyphStyle{spriteOf(l.gs)}
 		if l.halo {
-			styles = []draw.GlyphStyle{haloOf(l.gs), l.gs}
+			styles = []draw.GlyphStyle{spriteOf(haloOf(l.gs)), spriteOf(l.gs)}
 		}
 		for _, gs := range styles {
 			sc, err := plotter.NewScatter(l.xys)

@@ -275,6 +275,7 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
 		}
 		ls, gs := nullLineStyle(j)
+		gs = spriteOf(gs)
 		gs.Radius *= scale
 		for _, line := range chainLines(pts, pn.nullChains[j]) {
 			l, err := plotter.NewLine(line)
@@ -358,7 +359,7 @@ func markerScale(n int) vg.Length {
 
 // markerStyle is model i's marker.
 func markerStyle(i int) draw.GlyphStyle {
-	return draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)}
+	return spriteOf(draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)})
 }
 
 // errPoints pairs points with asymmetric vertical error offsets.
