@@ -306,8 +306,16 @@ func TestROCShown(t *testing.T) {
 		if shown[0].AreaKm2 != es[0].AreaKm2 || shown[len(shown)-1].AreaKm2 != es[len(es)-1].AreaKm2 {
 			t.Errorf("n=%d: shown areas %g..%g of %g..%g", n, shown[0].AreaKm2, shown[len(shown)-1].AreaKm2, es[0].AreaKm2, es[len(es)-1].AreaKm2)
 		}
-		if f := rocFigure(analyzedSampleWith(t, r)); !strings.Contains(f.Caption, fmt.Sprintf("each panel draws %d", len(shown))) {
+		if f := rocFigure(analyzedSampleWith(t, r)); !strings.Contains(f.Caption, fmt.Sprintf("each panel draws %d", len(shown))) ||
+			!strings.Contains(f.Caption, "base region (solid magenta) and the whole raster (dashed red)") {
 			t.Errorf("n=%d: caption %q", n, f.Caption)
+		}
+		for _, k := range []vocab.Kind{vocab.KindBase, vocab.KindWholeRaster} {
+			rs, _ := rocAnchorStyle(k)
+			ms, _ := anchorStyle(k)
+			if rs.Color != ms.Color || fmt.Sprint(rs.Dashes) != fmt.Sprint(ms.Dashes) {
+				t.Errorf("%s: ROC curve %v, map outline %v", k, rs, ms)
+			}
 		}
 	}
 }

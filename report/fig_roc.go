@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -121,10 +122,23 @@ func rocFigure(r *Results) figure {
 	if len(nulls(r)) > 0 {
 		perNull = " (and per null, after the models)"
 	}
+	var anchors []string
+	for _, ex := range es {
+		switch ex.Kind {
+		case vocab.KindBase:
+			anchors = append(anchors, "the base region (solid magenta)")
+		case vocab.KindWholeRaster:
+			anchors = append(anchors, "the whole raster (dashed red)")
+		}
+	}
+	anchorNote := ". "
+	if len(anchors) > 0 {
+		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
+	}
 	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
-		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
+		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)%s"+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
-		"The selector under the figures names each curve.", perNull, fmtG(e))
+		"The selector under the figures names each curve.", perNull, anchorNote, fmtG(e))
 	if thinned {
 		f.Caption += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
 			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+
@@ -137,6 +151,14 @@ func rocFigure(r *Results) figure {
 		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: band}})
 	}
 	items = append(items, legendItem{"random prediction", lineThumb{diag}})
+	// The base region and the whole raster keep the maps' styles
+	// (anchorStyle), so that the two references read the same in every
+	// figure; the other curves are on the area ramp.
+	for _, ex := range es {
+		if ls, ok := rocAnchorStyle(ex.Kind); ok {
+			items = append(items, legendItem{ex.ID, lineThumb{ls}})
+		}
+	}
 	legend := legendRows(items, f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
 	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
@@ -171,8 +193,17 @@ func rocFigure(r *Results) figure {
 			}
 			d.LineStyle = diag
 			p.Add(d)
-			// Largest first, so the small extents' dark curves lie on top.
-			for k := len(es) - 1; k >= 0; k-- {
+			// Largest first, so the small extents' dark curves lie on top,
+			// and the anchors last of all.
+			order := make([]int, 0, len(es))
+			for _, anchors := range []bool{false, true} {
+				for k := len(es) - 1; k >= 0; k-- {
+					if _, ok := rocAnchorStyle(es[k].Kind); ok == anchors {
+						order = append(order, k)
+					}
+				}
+			}
+			for _, k := range order {
 				ex := es[k]
 				c := findCurve(r, model, ex.ID)
 				if c == nil || !scoredFor(r, model, ex.ID) {
@@ -191,6 +222,9 @@ func rocFigure(r *Results) figure {
 					return fmt.Errorf("report: figure roc: %w", err)
 				}
 				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
+				if ls, ok := rocAnchorStyle(ex.Kind); ok {
+					l.LineStyle = ls
+				}
 				p.Add(newPaddingLine(l))
 			}
 			plots[i/cols][i%cols] = p
@@ -208,6 +242,15 @@ func rocFigure(r *Results) figure {
 		return nil
 	}
 	return f
+}
+
+// rocAnchorStyle is the ROC curve of the base region and of the whole
+// raster: their map outlines' colour and dash (anchorStyle) at the
+// curves' width; false for other kinds.
+func rocAnchorStyle(k vocab.Kind) (draw.LineStyle, bool) {
+	ls, ok := anchorStyle(k)
+	ls.Width = vg.Points(1.3)
+	return ls, ok
 }
 
 // drawAreaBar draws a vertical colour bar of the area ramp from lo to hi
