@@ -4,6 +4,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"reflect"
 	"sync"
 
 	"git.sr.ht/~sbinet/gg"
@@ -213,11 +214,14 @@ func (l *bufferList) put(b []byte) {
 type spriteGlyph struct{ inner draw.GlyphDrawer }
 
 // spriteOf returns gs with its shape drawn as a sprite on PNG canvases.
+// A shape that cannot be a map key (the sprites' cache is keyed by it) is
+// left as it is.
 func spriteOf(gs draw.GlyphStyle) draw.GlyphStyle {
-	if gs.Shape != nil {
-		if _, ok := gs.Shape.(spriteGlyph); !ok {
-			gs.Shape = spriteGlyph{gs.Shape}
-		}
+	if gs.Shape == nil || !reflect.TypeOf(gs.Shape).Comparable() {
+		return gs
+	}
+	if _, ok := gs.Shape.(spriteGlyph); !ok {
+		gs.Shape = spriteGlyph{gs.Shape}
 	}
 	return gs
 }
