@@ -22,8 +22,9 @@ import (
 // buffers alternately outside and inside it (20 km steps) and the whole
 // raster in chain "region"; point buffers (25 km steps) in chain
 // "points"; the hull and, past 200 extents, 8 user extents in no chain.
-// Each extent's preview mask is a disc (the buffers) or a box (the rest)
-// growing with its distance, so the outlines are nested as a chain's.
+// Each extent's preview mask is a disc growing with its distance (the
+// region buffers' radius 12 cells times exp(d / 800 km), never empty), so
+// the outlines are nested as a chain's.
 func manyExtents(t testing.TB, n int) *Results {
 	t.Helper()
 	r := loadSample(t)
@@ -70,7 +71,7 @@ func manyExtents(t testing.TB, n int) *Results {
 	}
 	for _, d := range region {
 		add(Extent{ID: fmt.Sprintf("region_%gkm", d), Kind: vocab.KindRegionBuffer, Params: fmt.Sprintf("d_km=%g", d), Chain: "region"},
-			disc(12+d/40))
+			disc(12*math.Exp(d/800)))
 	}
 	add(Extent{ID: "whole_raster", Kind: vocab.KindWholeRaster, Params: "all valid cells", Chain: "region"}, disc(1e9))
 	for i := range nPoints {
@@ -212,26 +213,35 @@ func textBox(tx svgText) vg.Rectangle {
 // titles), and that the maps' keys name the anchors and carry a colour
 // bar per chain.
 func TestManyExtentFiguresSVG(t *testing.T) {
-	r := manyExtents(t, 120)
-	f, ok := mapFigure(r)
-	if !ok {
-		t.Fatal("no map figure")
-	}
-	svg, err := render(f, "svg")
-	if err != nil {
-		t.Fatal(err)
-	}
-	checkTexts(t, "maps", svg)
-	texts, _ := parseSVG(t, svg)
-	count := map[string]int{}
-	for _, tx := range texts {
-		count[tx.s]++
-	}
-	if count["base"] != 1 || count["whole_raster"] != 1 || count["hull"] != 1 || count["buffer distance (km)"] != 2 {
-		t.Errorf("keys: base %d, whole_raster %d, hull %d, distance bars %d", count["base"], count["whole_raster"], count["hull"], count["buffer distance (km)"])
-	}
-	if !strings.Contains(f.Caption, "are not drawn here") {
-		t.Errorf("caption does not say that outlines were thinned: %s", f.Caption)
+	for _, n := range []int{120, 256} {
+		r := manyExtents(t, n)
+		f, ok := mapFigure(r)
+		if !ok {
+			t.Fatal("no map figure")
+		}
+		svg, err := render(f, "svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkTexts(t, fmt.Sprintf("maps of %d extents", n), svg)
+		texts, _ := parseSVG(t, svg)
+		count := map[string]int{}
+		for _, tx := range texts {
+			count[tx.s]++
+		}
+		// At 256 the eight user extents and the hull share the panel of
+		// extents in no chain, more than maxNamed: an area bar, no names.
+		hull, areaBars := 1, 0
+		if n > 200 {
+			hull, areaBars = 0, 1
+		}
+		if count["base"] != 1 || count["whole_raster"] != 1 || count["hull"] != hull || count["buffer distance (km)"] != 2 || count["extent area (km²)"] != areaBars {
+			t.Errorf("%d extents: keys: base %d, whole_raster %d, hull %d, distance bars %d, area bars %d", n,
+				count["base"], count["whole_raster"], count["hull"], count["buffer distance (km)"], count["extent area (km²)"])
+		}
+		if !strings.Contains(f.Caption, "are not drawn here") {
+			t.Errorf("%d extents: caption does not say that outlines were thinned: %s", n, f.Caption)
+		}
 	}
 }
 

@@ -355,7 +355,7 @@ func drawRampBar(c draw.Canvas, rk *rampKey) {
 	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
 	if rk.log {
 		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = logTicks{}
+		p.X.Tick.Marker = logTicks{W: c.Max.X - c.Min.X - vg.Points(10), Pt: minFontPt}
 	}
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = lo, hi, 0, 1
 	p.HideY()
