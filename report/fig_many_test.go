@@ -5,7 +5,10 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"os"
+	"path/filepath"
 	"regexp"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -417,4 +420,33 @@ func TestNullKeepsItsStyle(t *testing.T) {
 func svgColor(c color.Color) string {
 	r, g, b, _ := c.RGBA()
 	return fmt.Sprintf("#%02X%02X%02X", r>>8, g>>8, b>>8)
+}
+
+// TestFiguresSameOnAnyCoreCount writes the sample's report with one core
+// and with three and compares every figure file and the page byte for
+// byte (the PNGs' sprite caches, the renderings' order and the reused
+// buffers must not show in the files).
+func TestFiguresSameOnAnyCoreCount(t *testing.T) {
+	r := analyzedSample(t)
+	write := func(procs int) string {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		dir := t.TempDir()
+		if err := Write(dir, r); err != nil {
+			t.Fatal(err)
+		}
+		return dir
+	}
+	one, three := write(1), write(3)
+	files, err := filepath.Glob(filepath.Join(one, "figures", "*"))
+	if err != nil || len(files) < 12 {
+		t.Fatalf("%d figure files (%v)", len(files), err)
+	}
+	for _, f := range append(files, filepath.Join(one, "report.html")) {
+		rel, _ := filepath.Rel(one, f)
+		a, errA := os.ReadFile(f)
+		b, errB := os.ReadFile(filepath.Join(three, rel))
+		if errA != nil || errB != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s differs between 1 and 3 cores (%v, %v)", rel, errA, errB)
+		}
+	}
 }
