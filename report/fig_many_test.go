@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -447,6 +448,68 @@ func TestFiguresSameOnAnyCoreCount(t *testing.T) {
 		b, errB := os.ReadFile(filepath.Join(three, rel))
 		if errA != nil || errB != nil || !bytes.Equal(a, b) {
 			t.Errorf("%s differs between 1 and 3 cores (%v, %v)", rel, errA, errB)
+		}
+	}
+}
+
+// TestCutCorners checks the outlines' smoothing: a staircase of single
+// cells becomes one diagonal, and on the boundaries of random masks every
+// point of a smoothed line lies on the original line, closed lines stay
+// closed, open ones keep their ends, and every corner of the original is
+// within 0.36 cell (sqrt(2)/4, by construction) of the smoothed line.
+func TestCutCorners(t *testing.T) {
+	stairs := [][2]float64{{0, 0}, {1, 0}, {1, 1}, {2, 1}, {2, 2}, {3, 2}}
+	if got, want := fmt.Sprint(cutCorners(stairs)), fmt.Sprint([][2]float64{{0, 0}, {0.5, 0}, {2.5, 2}, {3, 2}}); got != want {
+		t.Errorf("staircase: %s, want %s", got, want)
+	}
+	onSeg := func(p, a, b [2]float64) bool {
+		cross := (b[0]-a[0])*(p[1]-a[1]) - (b[1]-a[1])*(p[0]-a[0])
+		return cross == 0 && p[0] >= math.Min(a[0], b[0]) && p[0] <= math.Max(a[0], b[0]) && p[1] >= math.Min(a[1], b[1]) && p[1] <= math.Max(a[1], b[1])
+	}
+	segDist := func(p, a, b [2]float64) float64 {
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		u := math.Max(0, math.Min(1, ((p[0]-a[0])*dx+(p[1]-a[1])*dy)/(dx*dx+dy*dy)))
+		return math.Hypot(a[0]+u*dx-p[0], a[1]+u*dy-p[1])
+	}
+	rng := rand.New(rand.NewPCG(11, 13))
+	for trial := range 40 {
+		const w, h = 30, 20
+		m := make([]bool, w*h)
+		for range 6 {
+			cx, cy, r := rng.Float64()*w, rng.Float64()*h, 1+rng.Float64()*6
+			for y := range h {
+				for x := range w {
+					if math.Hypot(float64(x)+0.5-cx, (float64(y)+0.5-cy)*1.3) <= r {
+						m[y*w+x] = true
+					}
+				}
+			}
+		}
+		for _, line := range edgeLines(maskEdges(m, w, h)) {
+			orig := append([][2]float64(nil), line...)
+			got := cutCorners(line)
+			closed := orig[0] == orig[len(orig)-1] && len(orig) > 3
+			if closed != (got[0] == got[len(got)-1]) || (!closed && (got[0] != orig[0] || got[len(got)-1] != orig[len(orig)-1])) {
+				t.Fatalf("trial %d: ends %v..%v became %v..%v", trial, orig[0], orig[len(orig)-1], got[0], got[len(got)-1])
+			}
+			for _, p := range got {
+				on := false
+				for i := 1; i < len(orig) && !on; i++ {
+					on = onSeg(p, orig[i-1], orig[i])
+				}
+				if !on {
+					t.Fatalf("trial %d: point %v off the original line", trial, p)
+				}
+			}
+			for _, p := range orig {
+				d := math.Inf(1)
+				for i := 1; i < len(got); i++ {
+					d = math.Min(d, segDist(p, got[i-1], got[i]))
+				}
+				if len(got) > 1 && d > math.Sqrt2/4+1e-12 {
+					t.Fatalf("trial %d: corner %v %.3f cell from the smoothed line", trial, p, d)
+				}
+			}
 		}
 	}
 }

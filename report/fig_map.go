@@ -557,6 +557,9 @@ func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 			continue
 		}
 		lines := edgeLines(maskEdges(m.masks[ei], w, h))
+		for k := range lines {
+			lines[k] = cutCorners(lines[k])
+		}
 		for _, l := range lines {
 			for i := range l {
 				l[i] = [2]float64{m.west + l[i][0]*cw, m.north - l[i][1]*ch}
@@ -612,6 +615,67 @@ func edgeLines(segs [][4]float64) [][][2]float64 {
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// cutCorners smooths a polyline of axis-parallel runs with whole-number
+// ends (edgeLines) for drawing: each corner is replaced by the midpoints
+// of the unit edges on either side of it, so a staircase of single cells
+// becomes one straight diagonal and a long run keeps its straight middle
+// (the polygon through the midpoints of the boundary's unit edges, with
+// the collinear ones dropped). Every point it returns lies on the
+// original line and no point of the result is more than 0.36 cell
+// (half a diagonal of half a cell) from it, so outlines at least a cell
+// apart never touch. A closed line (first point equal to the last) is cut
+// at every corner and stays closed; an open one keeps its two ends.
+func cutCorners(line [][2]float64) [][2]float64 {
+	n := len(line)
+	closed := n > 3 && line[0] == line[n-1]
+	if n < 3 {
+		return line
+	}
+	unit := func(a, b [2]float64) [2]float64 {
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		l := math.Abs(dx) + math.Abs(dy) // axis-parallel: one of them is 0
+		return [2]float64{dx / l, dy / l}
+	}
+	var out [][2]float64
+	push := func(p [2]float64) {
+		k := len(out)
+		if k > 0 && out[k-1] == p {
+			return
+		}
+		if k >= 2 { // drop the middle of three collinear points
+			a, b := out[k-2], out[k-1]
+			if (b[0]-a[0])*(p[1]-b[1])-(b[1]-a[1])*(p[0]-b[0]) == 0 &&
+				(b[0]-a[0])*(p[0]-b[0])+(b[1]-a[1])*(p[1]-b[1]) > 0 {
+				out[k-1] = p
+				return
+			}
+		}
+		out = append(out, p)
+	}
+	corner := func(prev, p, next [2]float64) {
+		a, b := unit(prev, p), unit(p, next)
+		push([2]float64{p[0] - a[0]/2, p[1] - a[1]/2})
+		push([2]float64{p[0] + b[0]/2, p[1] + b[1]/2})
+	}
+	if !closed {
+		push(line[0])
+		for i := 1; i < n-1; i++ {
+			corner(line[i-1], line[i], line[i+1])
+		}
+		push(line[n-1])
+		return out
+	}
+	// Closed: the corners at 1..n-2, then the one at the start (and end).
+	for i := 1; i < n-1; i++ {
+		corner(line[i-1], line[i], line[i+1])
+	}
+	corner(line[n-2], line[0], line[1])
+	if len(out) > 0 {
+		push(out[0]) // close, dropping the start if it is collinear
+	}
+	return out
 }
 
 // addMarks adds the point layers [from, to) to p, each over a white halo
@@ -790,7 +854,7 @@ func mapFigure(r *Results) (figure, bool) {
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
-		"Outlines follow the coarse copy's cells, so they are drawn to within one of its cells.", maxNamed, model, model)
+		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", maxNamed, model, model)
 	thinned := 0
 	for _, g := range groups {
 		thinned += mapKeyOf(r, g).thinned
