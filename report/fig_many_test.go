@@ -513,3 +513,33 @@ func TestCutCorners(t *testing.T) {
 		}
 	}
 }
+
+// TestROCNullPanelShaded: the ROC figure shades the data area of each
+// null's panel and of no model's, and its key and caption say so.
+func TestROCNullPanelShaded(t *testing.T) {
+	for _, withN := range []bool{false, true} {
+		r := analyzedSample(t)
+		if withN {
+			r = withNull(t)
+			if err := Analyze(r); err != nil {
+				t.Fatal(err)
+			}
+		}
+		f := rocFigure(r)
+		svg, err := render(f, "svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		fill := "fill:" + svgColor(nullPanelShade)
+		want := 0
+		if withN {
+			want = 2 // the null's panel and the key's box
+		}
+		if got := strings.Count(string(svg), fill); got != want {
+			t.Errorf("null %v: %d shapes filled %s, want %d", withN, got, fill, want)
+		}
+		if got := strings.Contains(f.Caption, "a reference, not a model"); got != withN {
+			t.Errorf("null %v: caption %q", withN, f.Caption)
+		}
+	}
+}

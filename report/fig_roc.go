@@ -120,7 +120,7 @@ func rocFigure(r *Results) figure {
 	panelW := (f.W - barW) / vg.Length(cols)
 	perNull := ""
 	if len(nulls(r)) > 0 {
-		perNull = " (and per null, after the models)"
+		perNull = " (and per null, after the models, on a light grey ground: a reference, not a model)"
 	}
 	var anchors []string
 	for _, ex := range es {
@@ -151,6 +151,9 @@ func rocFigure(r *Results) figure {
 		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: band}})
 	}
 	items = append(items, legendItem{"random prediction", lineThumb{diag}})
+	if len(nulls(r)) > 0 {
+		items = append(items, legendItem{"null's panel (a reference)", boxThumb{fill: nullPanelShade}})
+	}
 	// The base region and the whole raster keep the maps' styles
 	// (anchorStyle), so that the two references read the same in every
 	// figure; the other curves are on the area ramp.
@@ -178,6 +181,17 @@ func rocFigure(r *Results) figure {
 				p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
 			}
 			p.Y.Label.Text = "share of test records"
+			if isNull(r, model) {
+				// A null's panel is shaded: a reference, never one more
+				// model.
+				shade, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+				if err != nil {
+					return fmt.Errorf("report: figure roc: %w", err)
+				}
+				shade.Color = nullPanelShade
+				shade.LineStyle.Width = 0
+				p.Add(shade)
+			}
 			if e > 0 {
 				poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
 				if err != nil {
@@ -243,6 +257,10 @@ func rocFigure(r *Results) figure {
 	}
 	return f
 }
+
+// nullPanelShade fills the data area of a null's ROC panel, lighter than
+// the partial ROC band (grey 225) so that the band still shows on it.
+var nullPanelShade = color.Gray{Y: 240}
 
 // rocAnchorStyle is the ROC curve of the base region and of the whole
 // raster: their map outlines' colour and dash (anchorStyle) at the
