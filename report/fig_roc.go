@@ -120,7 +120,7 @@ func rocFigure(r *Results) figure {
 	panelW := (f.W - barW) / vg.Length(cols)
 	perNull := ""
 	if len(nulls(r)) > 0 {
-		perNull = " (and per null, after the models, on a light grey ground: a reference, not a model)"
+		perNull = " (and per null, after the models)"
 	}
 	var anchors []string
 	for _, ex := range es {
@@ -139,6 +139,9 @@ func rocFigure(r *Results) figure {
 		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)%s"+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
 		"The selector under the figures names each curve.", perNull, anchorNote, fmtG(e))
+	if len(nulls(r)) > 0 {
+		f.Caption += " A null's panel is shaded light grey: a reference, not a model."
+	}
 	if thinned {
 		f.Caption += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
 			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+
