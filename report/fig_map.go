@@ -19,13 +19,14 @@ import (
 	"areasweep/metrics"
 )
 
-// maxNamed is the most outlines of a panel drawn each in a colour and
-// dash of its own and named in the panel's key, besides the base and the
-// whole raster (anchorStyle); more, or any with a buffer distance, are
-// drawn on a colour ramp instead (mapKeyOf). namedColors are the colours
-// of lineColors that no anchor uses.
+// namedColors are the colours of lineColors that no anchor (anchorStyle)
+// uses: blue, orange, teal and cyan.
 var namedColors = []color.RGBA{lineColors[0], lineColors[1], lineColors[2], lineColors[4]}
 
+// maxNamed is the most outlines of a panel drawn each in a colour and
+// dash of its own and named in the panel's key, besides the base and the
+// whole raster (anchorStyle); more, or two or more that all have a buffer
+// distance, are drawn on a colour ramp instead (mapKeyOf).
 var maxNamed = len(namedColors)
 
 // outline is the boundary of an extent on the preview grid in data
@@ -219,7 +220,7 @@ func rampDrawn(n int) []int {
 
 // rampKey is the colour bar of a panel's outlines on the ramp: the value
 // from lo to hi (log scale when log) mapped on areaRamp, with a tick at
-// each member's value.
+// the value of each member drawn (marks).
 type rampKey struct {
 	label  string
 	lo, hi float64
@@ -242,11 +243,12 @@ func (k *rampKey) t(v float64) float64 {
 // number of members: the base region and the whole raster keep their
 // anchor styles (anchorStyle) and are named; when every other member has
 // a buffer distance and they are two or more, those are drawn on
-// areaRamp by distance (dark =
-// nearest, so in a nested chain also smallest); otherwise up to maxNamed
-// are drawn each in its own colour and dash and named, and more are drawn
-// on areaRamp by area (log scale). A key is then at most 2 + maxNamed
-// names and one colour bar.
+// areaRamp by distance (dark = nearest, so in a nested chain also
+// smallest); otherwise up to maxNamed are drawn each in its own colour
+// and dash and named, and more are drawn on areaRamp by area (log scale).
+// Of the members on the ramp at most maxRampOutlines are drawn
+// (rampDrawn). A key is then at most 2 + maxNamed names and one colour
+// bar.
 func mapKeyOf(r *Results, g mapGroup) mapKey {
 	k := mapKey{styles: make([]draw.LineStyle, len(g.members))}
 	var rest []int // indices into g.members
