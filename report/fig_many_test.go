@@ -10,9 +10,11 @@ import (
 	"path/filepath"
 	"regexp"
 	"runtime"
+	"strconv"
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -542,4 +544,60 @@ func TestROCNullPanelShaded(t *testing.T) {
 			t.Errorf("null %v: caption %q", withN, f.Caption)
 		}
 	}
+}
+
+// TestLogTicksSpread: with an axis length, log tick labels never come
+// within 3 pt of each other (but two powers of ten, always labelled), and
+// on a long enough axis every 1, 2 and 5 x 10^k is.
+func TestLogTicksSpread(t *testing.T) {
+	for _, w := range []vg.Length{40, 80, 120, 200, 2000} {
+		for _, lo := range []float64{3, 40, 700, 5000} {
+			for _, decades := range []float64{0.7, 1.5, 2.4, 4} {
+				hi := lo * math.Pow(10, decades)
+				spread := logTicks{W: w, Pt: minFontPt}.Ticks(lo, hi)
+				all := logTicks{}.Ticks(lo, hi)
+				var xs []float64
+				var labels []string
+				for i, tk := range spread {
+					if tk.Value != all[i].Value {
+						t.Fatalf("[%g, %g]: ticks differ", lo, hi)
+					}
+					isDecade := tk.Value == math.Pow10(int(math.Round(math.Log10(tk.Value))))
+					if isDecade && all[i].Label != "" && tk.Label == "" {
+						t.Errorf("w=%g [%g, %g]: power of ten %g unlabelled", w, lo, hi, tk.Value)
+					}
+					if tk.Label != "" {
+						xs = append(xs, math.Log10(tk.Value/lo)/math.Log10(hi/lo)*float64(w))
+						labels = append(labels, tk.Label)
+					}
+				}
+				for i := 1; i < len(xs); i++ {
+					// Two powers of ten are kept however close (a range
+					// too wide for its axis); any other pair keeps apart.
+					need := (textWidth(labels[i-1], minFontPt)+textWidth(labels[i], minFontPt))/2 + vg.Points(3)
+					if vg.Length(xs[i]-xs[i-1]) < need && !(isPow10(labels[i-1]) && isPow10(labels[i])) {
+						t.Errorf("w=%g [%g, %g]: labels %s and %s %.1f pt apart", w, lo, hi, labels[i-1], labels[i], xs[i]-xs[i-1])
+					}
+				}
+				if w == 2000 && len(labels) != countLabels(all) {
+					t.Errorf("w=%g [%g, %g]: %d of %d labels on a long axis", w, lo, hi, len(labels), countLabels(all))
+				}
+			}
+		}
+	}
+}
+
+func isPow10(label string) bool {
+	v, err := strconv.ParseFloat(label, 64)
+	return err == nil && v == math.Pow10(int(math.Round(math.Log10(v))))
+}
+
+func countLabels(ts []plot.Tick) int {
+	n := 0
+	for _, tk := range ts {
+		if tk.Label != "" {
+			n++
+		}
+	}
+	return n
 }

@@ -371,8 +371,9 @@ type errPoints struct {
 func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
-		"a line joins the extents of one nested chain (extents in no chain are markers alone), so a family of several kinds has one line per chain and model. " +
-		"every score uses the test records inside that extent (counts in the Extents table). "
+		"every score uses the test records inside that extent (counts in the Extents table). " +
+		"A line joins the extents of one nested chain (extents in no chain are markers alone), so a family of several kinds has one line per chain and model; " +
+		"past 20 extents the markers shrink as they crowd. "
 	if st.PairedResamples >= 2 {
 		c += fmt.Sprintf("AUC bars: plus and minus one SD of AUC over the %d full-size paired resamples of the test records inside the extent, "+
 			"which estimates the same uncertainty as the AUC's standard error (Scores table). ", st.PairedResamples)

@@ -160,7 +160,7 @@ func (lt logTicks) spread(ts []plot.Tick, min, max float64) {
 	for i, t := range ts {
 		kept[i] = t.Label != "" && isDecade(t.Value)
 	}
-	clear := func(i, j int) bool { // labels i < j apart enough
+	apart := func(i, j int) bool { // labels i < j far enough apart
 		return x(ts[j].Value)-x(ts[i].Value) >= half(ts[i])+half(ts[j])+vg.Points(3)
 	}
 	for i, t := range ts {
@@ -170,13 +170,13 @@ func (lt logTicks) spread(ts []plot.Tick, min, max float64) {
 		ok := true
 		for j := i - 1; j >= 0 && ok; j-- {
 			if kept[j] {
-				ok = clear(j, i)
+				ok = apart(j, i)
 				break
 			}
 		}
 		for j := i + 1; j < len(ts) && ok; j++ {
 			if kept[j] {
-				ok = clear(i, j)
+				ok = apart(i, j)
 				break
 			}
 		}
