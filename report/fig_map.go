@@ -190,6 +190,8 @@ type mapKey struct {
 	// drawn (rampDrawn).
 	order   []int
 	thinned int
+	// previewW is the preview's width in cells (barPixels).
+	previewW int
 }
 
 // maxRampOutlines is the most outlines a panel draws on its ramp (our
@@ -334,12 +336,32 @@ func (k mapKey) draw(c draw.Canvas) {
 	bc := c
 	bc.Max.Y = c.Max.Y - vg.Length(len(rows))*legendRowHeight
 	bc.Min.Y = bc.Max.Y - rampKeyH
-	drawRampBar(bc, k.ramp)
+	drawRampBar(bc, k.ramp, barPixels(k.previewW).ramp)
+}
+
+// barWidths are the widths in pixels of the maps' colour-bar images.
+type barWidths struct{ suitability, ramp int }
+
+// barPixels returns colour-bar widths (about 128 pixels) that differ from
+// each other and from the preview's width w. The PDF writer orders a
+// document's images by width alone, from a map, so two different images
+// of one width came out in either order: the same maps gave different
+// PDF bytes from run to run.
+func barPixels(w int) barWidths {
+	b := barWidths{suitability: 128, ramp: 127}
+	if w == b.suitability {
+		b.suitability = 130
+	}
+	if w == b.ramp {
+		b.ramp = 129
+	}
+	return b
 }
 
 // drawRampBar draws a horizontal colour bar of areaRamp for rk in c, an
-// axis under it and a short tick above it at each member's value.
-func drawRampBar(c draw.Canvas, rk *rampKey) {
+// axis under it and a short tick above it at each member's value; the
+// bar's image is n pixels wide.
+func drawRampBar(c draw.Canvas, rk *rampKey, n int) {
 	lo, hi := rk.lo, rk.hi
 	if !(hi > lo) {
 		if rk.log {
@@ -348,10 +370,9 @@ func drawRampBar(c draw.Canvas, rk *rampKey) {
 			lo, hi = lo-1, hi+1
 		}
 	}
-	const n = 128
 	img := image.NewRGBA(image.Rect(0, 0, n, 1))
 	for x := range n {
-		img.Set(x, 0, areaRamp((float64(x)+0.5)/n))
+		img.Set(x, 0, areaRamp((float64(x)+0.5)/float64(n)))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
 	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
@@ -552,6 +573,7 @@ func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 	w, h := m.r.Preview.Width, m.r.Preview.Height
 	cw, ch := (m.east-m.west)/float64(w), (m.north-m.south)/float64(h)
 	key := mapKeyOf(m.r, g)
+	key.previewW = w
 	var os []*outline
 	for _, q := range key.order {
 		ei := g.members[q]
@@ -905,7 +927,7 @@ func mapFigure(r *Results) (figure, bool) {
 		barC.Min.X += vg.Points(8)
 		drawLegendRows(keyC, sharedRows)
 		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
-		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model)
+		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model, barPixels(pv.Width).suitability)
 		if kmPerPt > 0 {
 			drawScaleBar(scaleC, kmPerPt)
 		}
@@ -934,15 +956,14 @@ func fitAspect(p *plot.Plot, c draw.Canvas, west, south, east, north, aspect flo
 }
 
 // drawSuitabilityBar draws a horizontal colour bar of the suitability
-// ramp from lo to hi in c.
-func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string) {
+// ramp from lo to hi in c; the bar's image is n pixels wide.
+func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string, n int) {
 	if !(hi > lo) {
 		hi = lo + 1
 	}
-	const n = 128
 	img := image.NewRGBA(image.Rect(0, 0, n, 1))
 	for x := range n {
-		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/n))
+		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/float64(n)))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
 	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
