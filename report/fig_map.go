@@ -5,6 +5,8 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"sort"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -17,23 +19,43 @@ import (
 	"areasweep/metrics"
 )
 
-// maxOutlines is the most extent outlines in one map panel: one per
-// colour of lineColors, so no colour repeats in a panel.
-var maxOutlines = len(lineColors)
+// namedColors are the colours of lineColors that no anchor (anchorStyle)
+// uses: blue, orange, teal and cyan.
+var namedColors = []color.RGBA{lineColors[0], lineColors[1], lineColors[2], lineColors[4]}
 
-// outline is a set of straight segments in data coordinates drawn with one
-// line style: the boundary of an extent on the preview grid.
+// maxNamed is the most outlines of a panel drawn each in a colour and
+// dash of its own and named in the panel's key, besides the base and the
+// whole raster (anchorStyle); more, or two or more that all have a buffer
+// distance, are drawn on a colour ramp instead (mapKeyOf).
+var maxNamed = len(namedColors)
+
+// outline is the boundary of an extent on the preview grid in data
+// coordinates: closed or open polylines, drawn with one line style.
 type outline struct {
-	segs [][4]float64
-	ls   draw.LineStyle
+	lines [][][2]float64 // x, y in the grid CRS
+	ls    draw.LineStyle
 }
 
-// Plot implements plot.Plotter.
+// Plot implements plot.Plotter: every polyline of the outline in one
+// stroked path, so one call on the canvas per extent.
 func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
-	for _, s := range o.segs {
-		c.StrokeLine2(o.ls, trX(s[0]), trY(s[1]), trX(s[2]), trY(s[3]))
+	var path vg.Path
+	for _, l := range o.lines {
+		for i, pt := range l {
+			q := vg.Point{X: trX(pt[0]), Y: trY(pt[1])}
+			if i == 0 {
+				path.Move(q)
+			} else {
+				path.Line(q)
+			}
+		}
 	}
+	if len(path) == 0 {
+		return
+	}
+	c.SetLineStyle(o.ls)
+	c.Stroke(path)
 }
 
 // maskEdges returns the boundary of a mask as merged horizontal and
@@ -89,8 +111,9 @@ type mapGroup struct {
 }
 
 // mapGroups puts the usable extents into panels: one per nested chain in
-// family order, then the extents in no chain; a group of more than
-// maxOutlines extents is split into parts.
+// family order, then one for the extents in no chain. However many
+// members a panel has, its key stays small: the outlines beyond a few are
+// drawn on a colour ramp (mapKeyOf).
 func mapGroups(r *Results) []mapGroup {
 	var order []string
 	byChain := map[string][]int{}
@@ -105,28 +128,274 @@ func mapGroups(r *Results) []mapGroup {
 	}
 	var gs []mapGroup
 	for _, ch := range order {
-		if ch == "" {
-			continue
+		if ch != "" {
+			gs = append(gs, mapGroup{title: "nested chain " + ch, members: byChain[ch]})
 		}
-		gs = append(gs, splitGroup("nested chain "+ch, byChain[ch])...)
 	}
 	if m := byChain[""]; len(m) > 0 {
-		gs = append(gs, splitGroup("extents in no chain", m)...)
+		gs = append(gs, mapGroup{title: "extents in no chain", members: m})
 	}
 	return gs
 }
 
-func splitGroup(title string, members []int) []mapGroup {
-	if len(members) <= maxOutlines {
-		return []mapGroup{{title: title, members: members}}
+// extentDistance returns the buffer distance of e in km: the d_km of its
+// parameters, or 0 for the convex hull itself; false for extents without
+// one (the base, the whole raster, ecoregions, the user's).
+func extentDistance(e Extent) (float64, bool) {
+	for _, part := range strings.Split(e.Params, ";") {
+		if v, ok := strings.CutPrefix(strings.TrimSpace(part), "d_km="); ok {
+			d, err := strconv.ParseFloat(v, 64)
+			if err == nil && !math.IsInf(d, 0) && !math.IsNaN(d) {
+				return d, true
+			}
+		}
 	}
-	parts := (len(members) + maxOutlines - 1) / maxOutlines
-	var gs []mapGroup
-	for k := range parts {
-		lo, hi := k*len(members)/parts, (k+1)*len(members)/parts
-		gs = append(gs, mapGroup{title: fmt.Sprintf("%s (part %d of %d)", title, k+1, parts), members: members[lo:hi]})
+	if e.Kind == vocab.KindHull {
+		return 0, true
 	}
-	return gs
+	return 0, false
+}
+
+// anchorStyle is the outline of the base region (solid) and of the whole
+// raster (dashed), the same in every panel and in colours that neither
+// the ramp nor namedColors use, drawn heavier than the rest; false for
+// other kinds.
+func anchorStyle(k vocab.Kind) (draw.LineStyle, bool) {
+	switch k {
+	case vocab.KindBase:
+		return lineStyle(lineColors[3], 1.7, nil), true
+	case vocab.KindWholeRaster:
+		return lineStyle(lineColors[5], 1.4, dashes[1]), true
+	}
+	return draw.LineStyle{}, false
+}
+
+// namedStyle is the k-th named outline of a panel (k < maxNamed).
+func namedStyle(k int) draw.LineStyle {
+	return lineStyle(namedColors[k%len(namedColors)], 1.3, dashes[k%len(dashes)])
+}
+
+// rampWidth is the line width of an outline on the ramp: thin, so that
+// outlines a few cells apart stay apart.
+const rampWidth = 0.9
+
+// mapKey is how a panel draws its outlines: a style per member, the
+// named ones for the key, and the colour ramp of the others.
+type mapKey struct {
+	styles []draw.LineStyle // per member of the group, in its order
+	named  []legendItem     // the anchors, then the named members
+	ramp   *rampKey         // nil when no member is on the ramp
+	// order is the order the outlines are drawn in: ramp (by value),
+	// named, anchors; thinned is the number of members on the ramp not
+	// drawn (rampDrawn).
+	order   []int
+	thinned int
+	// previewW is the preview's width in cells (barPixels).
+	previewW int
+}
+
+// maxRampOutlines is the most outlines a panel draws on its ramp (our
+// choice: at the maps' print size, buffers of a study's usual spacing
+// more than about 20 to a panel leave no gap between their lines and
+// hide the points under them).
+const maxRampOutlines = 20
+
+// rampDrawn returns which of n members on a ramp, in order of value, a
+// panel draws: all up to maxRampOutlines; past that every k-th from the
+// first, k = ceil((n-1)/(maxRampOutlines-1)), and always the last, so the
+// drawn ones span the whole ramp evenly.
+func rampDrawn(n int) []int {
+	if n <= maxRampOutlines {
+		out := make([]int, n)
+		for i := range out {
+			out[i] = i
+		}
+		return out
+	}
+	k := (n - 1 + maxRampOutlines - 2) / (maxRampOutlines - 1)
+	var out []int
+	for i := 0; i < n-1; i += k {
+		out = append(out, i)
+	}
+	return append(out, n-1)
+}
+
+// rampKey is the colour bar of a panel's outlines on the ramp: the value
+// from lo to hi (log scale when log) mapped on areaRamp, with a tick at
+// the value of each member drawn (marks).
+type rampKey struct {
+	label  string
+	lo, hi float64
+	log    bool
+	marks  []float64
+}
+
+// t places v on the ramp, 0 to 1 (0.5 when the ramp has one value).
+func (k *rampKey) t(v float64) float64 {
+	if !(k.hi > k.lo) {
+		return 0.5
+	}
+	if k.log {
+		return logPosition(v, k.lo, k.hi)
+	}
+	return (v - k.lo) / (k.hi - k.lo)
+}
+
+// mapKeyOf styles the outlines of group g, a rule that holds for any
+// number of members: the base region and the whole raster keep their
+// anchor styles (anchorStyle) and are named; when every other member has
+// a buffer distance and they are two or more, those are drawn on
+// areaRamp by distance (dark = nearest, so in a nested chain also
+// smallest); otherwise up to maxNamed are drawn each in its own colour
+// and dash and named, and more are drawn on areaRamp by area (log scale).
+// Of the members on the ramp at most maxRampOutlines are drawn
+// (rampDrawn). A key is then at most 2 + maxNamed names and one colour
+// bar.
+func mapKeyOf(r *Results, g mapGroup) mapKey {
+	k := mapKey{styles: make([]draw.LineStyle, len(g.members))}
+	var rest []int // indices into g.members
+	allDist := true
+	var anchors []int
+	for q, ei := range g.members {
+		e := r.Extents[ei]
+		if ls, ok := anchorStyle(e.Kind); ok {
+			k.styles[q] = ls
+			anchors = append(anchors, q)
+			continue
+		}
+		rest = append(rest, q)
+		if _, ok := extentDistance(e); !ok {
+			allDist = false
+		}
+	}
+	var named []int
+	switch {
+	case (allDist && len(rest) >= 2) || len(rest) > maxNamed:
+		rk := &rampKey{label: "buffer distance (km)", lo: math.Inf(1), hi: math.Inf(-1)}
+		val := func(e Extent) float64 { d, _ := extentDistance(e); return d }
+		if !allDist {
+			rk.label, rk.log = "extent area (km²)", true
+			val = func(e Extent) float64 { return e.AreaKm2 }
+		}
+		vals := map[int]float64{}
+		for _, q := range rest {
+			v := val(r.Extents[g.members[q]])
+			if rk.log && !(v > 0) {
+				v = math.SmallestNonzeroFloat64 // no area: the ramp's dark end
+			} else {
+				rk.lo, rk.hi = math.Min(rk.lo, v), math.Max(rk.hi, v)
+			}
+			vals[q] = v
+		}
+		if rk.lo > rk.hi {
+			rk.lo, rk.hi = 1, 1
+		}
+		sort.SliceStable(rest, func(a, b int) bool { return vals[rest[a]] < vals[rest[b]] })
+		for _, q := range rest {
+			k.styles[q] = lineStyle(areaRamp(math.Max(0, rk.t(vals[q]))), rampWidth, nil)
+		}
+		for _, i := range rampDrawn(len(rest)) {
+			k.order = append(k.order, rest[i])
+			rk.marks = append(rk.marks, vals[rest[i]])
+		}
+		k.ramp = rk
+		k.thinned = len(rest) - len(rk.marks)
+	default:
+		named = rest
+	}
+	for n, q := range named {
+		k.styles[q] = namedStyle(n)
+	}
+	for _, q := range append(anchors, named...) {
+		k.named = append(k.named, legendItem{r.Extents[g.members[q]].ID, lineThumb{k.styles[q]}})
+	}
+	k.order = append(append(k.order, named...), anchors...)
+	return k
+}
+
+// rampKeyH is the height of a panel key's colour bar with its ticks,
+// tick labels and axis label.
+const rampKeyH = 12 * vg.Millimeter
+
+// keyHeight is the height of a panel's key laid out in width w.
+func (k mapKey) keyHeight(w vg.Length) vg.Length {
+	h := vg.Length(len(legendRows(k.named, w))) * legendRowHeight
+	if k.ramp != nil {
+		h += rampKeyH
+	}
+	return h + vg.Points(4)
+}
+
+// draw draws the key in c: the named outlines, then the colour bar.
+func (k mapKey) draw(c draw.Canvas) {
+	rows := legendRows(k.named, c.Max.X-c.Min.X)
+	drawLegendRows(c, rows)
+	if k.ramp == nil {
+		return
+	}
+	bc := c
+	bc.Max.Y = c.Max.Y - vg.Length(len(rows))*legendRowHeight
+	bc.Min.Y = bc.Max.Y - rampKeyH
+	drawRampBar(bc, k.ramp, barPixels(k.previewW).ramp)
+}
+
+// barWidths are the widths in pixels of the maps' colour-bar images.
+type barWidths struct{ suitability, ramp int }
+
+// barPixels returns colour-bar widths (about 128 pixels) that differ from
+// each other and from the preview's width w. The PDF writer orders a
+// document's images by width alone, from a map, so two different images
+// of one width came out in either order: the same maps gave different
+// PDF bytes from run to run.
+func barPixels(w int) barWidths {
+	b := barWidths{suitability: 128, ramp: 127}
+	if w == b.suitability {
+		b.suitability = 130
+	}
+	if w == b.ramp {
+		b.ramp = 129
+	}
+	return b
+}
+
+// drawRampBar draws a horizontal colour bar of areaRamp for rk in c, an
+// axis under it and a short tick above it at each member's value; the
+// bar's image is n pixels wide.
+func drawRampBar(c draw.Canvas, rk *rampKey, n int) {
+	lo, hi := rk.lo, rk.hi
+	if !(hi > lo) {
+		if rk.log {
+			lo, hi = lo/1.1, hi*1.1
+		} else {
+			lo, hi = lo-1, hi+1
+		}
+	}
+	img := image.NewRGBA(image.Rect(0, 0, n, 1))
+	for x := range n {
+		img.Set(x, 0, areaRamp((float64(x)+0.5)/float64(n)))
+	}
+	p := newPlot("", c.Max.X-c.Min.X)
+	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
+	if rk.log {
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = logTicks{W: c.Max.X - c.Min.X - vg.Points(10), Pt: minFontPt}
+	}
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = lo, hi, 0, 1
+	p.HideY()
+	p.X.Label.Text = rk.label
+	bc := c
+	bc.Max.Y -= vg.Points(3) // room for the members' ticks
+	da := p.DataCanvas(bc)
+	bc.Min.Y += (da.Max.Y - da.Min.Y) - 2.5*vg.Millimeter
+	bc.Max.X -= vg.Points(10)
+	p.Draw(bc)
+	da = p.DataCanvas(bc)
+	trX, _ := p.Transforms(&da)
+	ls := lineStyle(ink, 0.5, nil)
+	for _, v := range rk.marks {
+		x := trX(v)
+		c.StrokeLine2(ls, x, da.Max.Y, x, da.Max.Y+vg.Points(2.5))
+	}
 }
 
 // omittedAt returns the ids of the test points model omits at threshold.
@@ -250,16 +519,11 @@ type mapScene struct {
 	west, south, east, north float64
 	aspect                   float64 // km per unit in x over km per unit in y
 	marks                    mapMarks
-	// outlines and items are the outlines and their legend items of
-	// each panel (mapScene.outlines), by the panel's place in the groups
+	// outlines and keys are the outlines (in drawing order) and the key
+	// of each panel (traceOutlines), by the panel's place in the groups
 	// the scene was made for.
 	outlines [][]*outline
-	items    [][]legendItem
-}
-
-// outlineStyle is the k-th outline of a panel.
-func outlineStyle(k int) draw.LineStyle {
-	return lineStyle(lineColors[k], 1.3, dashes[k%len(dashes)])
+	keys     []mapKey
 }
 
 // newMapScene decodes the preview and traces the outlines of the panels
@@ -285,9 +549,9 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, erro
 	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
 	for _, g := range groups {
-		os, items := m.traceOutlines(g)
+		os, key := m.traceOutlines(g)
 		m.outlines = append(m.outlines, os)
-		m.items = append(m.items, items)
+		m.keys = append(m.keys, key)
 	}
 	return m, nil
 }
@@ -303,36 +567,151 @@ func mapAspect(r *Results) float64 {
 }
 
 // traceOutlines returns the outline of every extent of group g, in the
-// grid CRS, and their legend items.
-func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, []legendItem) {
+// grid CRS and in the order they are drawn (mapKey.order), and the
+// panel's key.
+func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 	w, h := m.r.Preview.Width, m.r.Preview.Height
 	cw, ch := (m.east-m.west)/float64(w), (m.north-m.south)/float64(h)
+	key := mapKeyOf(m.r, g)
+	key.previewW = w
 	var os []*outline
-	var items []legendItem
-	for k, ei := range g.members {
+	for _, q := range key.order {
+		ei := g.members[q]
 		if ei >= len(m.masks) {
 			continue
 		}
-		segs := maskEdges(m.masks[ei], w, h)
-		for q := range segs {
-			segs[q] = [4]float64{m.west + segs[q][0]*cw, m.north - segs[q][1]*ch, m.west + segs[q][2]*cw, m.north - segs[q][3]*ch}
+		lines := edgeLines(maskEdges(m.masks[ei], w, h))
+		for k := range lines {
+			lines[k] = cutCorners(lines[k])
 		}
-		o := &outline{segs: segs, ls: outlineStyle(k)}
-		os = append(os, o)
-		items = append(items, legendItem{m.r.Extents[ei].ID, lineThumb{o.ls}})
+		for _, l := range lines {
+			for i := range l {
+				l[i] = [2]float64{m.west + l[i][0]*cw, m.north - l[i][1]*ch}
+			}
+		}
+		os = append(os, &outline{lines: lines, ls: key.styles[q]})
 	}
-	return os, items
+	return os, key
 }
 
-// addMarks adds the point layers to p, each over a white halo where asked.
-func (m *mapScene) addMarks(p *plot.Plot) error {
-	for _, l := range m.marks.layers {
+// edgeLines joins the axis-parallel runs segs (maskEdges: whole-number
+// ends) into polylines: from the first run not yet used, each next run is
+// the first unused one, in segs order, that starts or ends where the
+// line ends, until none does. A mask's boundary is made of closed loops,
+// so most lines close; where four runs meet the line may stop, and the
+// rest of the loop starts another. Every run is in exactly one line.
+func edgeLines(segs [][4]float64) [][][2]float64 {
+	type end = [2]float64
+	at := make(map[end][]int32, 2*len(segs))
+	for i, s := range segs {
+		a, b := end{s[0], s[1]}, end{s[2], s[3]}
+		at[a] = append(at[a], int32(i))
+		at[b] = append(at[b], int32(i))
+	}
+	used := make([]bool, len(segs))
+	var lines [][][2]float64
+	for i, s := range segs {
+		if used[i] {
+			continue
+		}
+		used[i] = true
+		line := [][2]float64{{s[0], s[1]}, {s[2], s[3]}}
+		for {
+			tip := line[len(line)-1]
+			next := -1
+			for _, j := range at[tip] {
+				if !used[j] {
+					next = int(j)
+					break
+				}
+			}
+			if next < 0 {
+				break
+			}
+			used[next] = true
+			t := segs[next]
+			if (end{t[0], t[1]}) == tip {
+				line = append(line, end{t[2], t[3]})
+			} else {
+				line = append(line, end{t[0], t[1]})
+			}
+		}
+		lines = append(lines, line)
+	}
+	return lines
+}
+
+// cutCorners smooths a polyline of axis-parallel runs with whole-number
+// ends (edgeLines) for drawing: each corner is replaced by the midpoints
+// of the unit edges on either side of it, so a staircase of single cells
+// becomes one straight diagonal and a long run keeps its straight middle
+// (the polygon through the midpoints of the boundary's unit edges, with
+// the collinear ones dropped). Every point it returns lies on the
+// original line and no point of the result is more than 0.36 cell
+// (half a diagonal of half a cell) from it, so outlines at least a cell
+// apart never touch. A closed line (first point equal to the last) is cut
+// at every corner and stays closed; an open one keeps its two ends.
+func cutCorners(line [][2]float64) [][2]float64 {
+	n := len(line)
+	closed := n > 3 && line[0] == line[n-1]
+	if n < 3 {
+		return line
+	}
+	unit := func(a, b [2]float64) [2]float64 {
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		l := math.Abs(dx) + math.Abs(dy) // axis-parallel: one of them is 0
+		return [2]float64{dx / l, dy / l}
+	}
+	var out [][2]float64
+	push := func(p [2]float64) {
+		k := len(out)
+		if k > 0 && out[k-1] == p {
+			return
+		}
+		if k >= 2 { // drop the middle of three collinear points
+			a, b := out[k-2], out[k-1]
+			if (b[0]-a[0])*(p[1]-b[1])-(b[1]-a[1])*(p[0]-b[0]) == 0 &&
+				(b[0]-a[0])*(p[0]-b[0])+(b[1]-a[1])*(p[1]-b[1]) > 0 {
+				out[k-1] = p
+				return
+			}
+		}
+		out = append(out, p)
+	}
+	corner := func(prev, p, next [2]float64) {
+		a, b := unit(prev, p), unit(p, next)
+		push([2]float64{p[0] - a[0]/2, p[1] - a[1]/2})
+		push([2]float64{p[0] + b[0]/2, p[1] + b[1]/2})
+	}
+	if !closed {
+		push(line[0])
+		for i := 1; i < n-1; i++ {
+			corner(line[i-1], line[i], line[i+1])
+		}
+		push(line[n-1])
+		return out
+	}
+	// Closed: the corners at 1..n-2, then the one at the start (and end).
+	for i := 1; i < n-1; i++ {
+		corner(line[i-1], line[i], line[i+1])
+	}
+	corner(line[n-2], line[0], line[1])
+	if len(out) > 0 {
+		push(out[0]) // close, dropping the start if it is collinear
+	}
+	return out
+}
+
+// addMarks adds the point layers [from, to) to p, each over a white halo
+// where asked.
+func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
+	for _, l := range m.marks.layers[from:to] {
 		if len(l.xys) == 0 {
 			continue
 		}
-		styles := []draw.GlyphStyle{l.gs}
+		styles := []draw.GlyphStyle{spriteOf(l.gs)}
 		if l.halo {
-			styles = []draw.GlyphStyle{haloOf(l.gs), l.gs}
+			styles = []draw.GlyphStyle{spriteOf(haloOf(l.gs)), spriteOf(l.gs)}
 		}
 		for _, gs := range styles {
 			sc, err := plotter.NewScatter(l.xys)
@@ -363,18 +742,24 @@ func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length
 	} else {
 		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
 	}
-	os, items := m.outlines[gi], m.items[gi]
+	// The training and test points, then the outlines (thin enough to
+	// leave the points visible, and the figure's subject), then the
+	// omission marks on top.
+	if err := m.addMarks(p, 0, min(2, len(m.marks.layers))); err != nil {
+		return 0, err
+	}
+	os, key := m.outlines[gi], m.keys[gi]
 	for _, o := range os {
 		p.Add(o)
 	}
-	if err := m.addMarks(p); err != nil {
+	if err := m.addMarks(p, min(2, len(m.marks.layers)), len(m.marks.layers)); err != nil {
 		return 0, err
 	}
 	fitAspect(p, mapC, m.west, m.south, m.east, m.north, m.aspect)
 	p.Draw(mapC)
 	da := p.DataCanvas(mapC)
 	legC.Min.X = da.Min.X
-	drawLegendRows(legC, legendRows(items, legC.Max.X-legC.Min.X))
+	key.draw(legC)
 	if !m.r.Grid.Geographic {
 		return 0, nil
 	}
@@ -415,15 +800,10 @@ func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float
 	try := func(cols int) (mapLayout, vg.Length) {
 		l := mapLayout{cols: cols, cellW: w / vg.Length(cols)}
 		dataW := l.cellW - vg.Points(44)
-		legendRowsMax := 1
+		l.legendH = legendRowHeight + vg.Points(4)
 		for _, g := range groups {
-			var items []legendItem
-			for k, ei := range g.members {
-				items = append(items, legendItem{r.Extents[ei].ID, lineThumb{outlineStyle(k)}})
-			}
-			legendRowsMax = max(legendRowsMax, len(legendRows(items, dataW)))
+			l.legendH = max(l.legendH, mapKeyOf(r, g).keyHeight(dataW))
 		}
-		l.legendH = vg.Length(legendRowsMax)*legendRowHeight + vg.Points(4)
 		rows := (len(groups) + cols - 1) / cols
 		chrome := vg.Points(mapPanelChrome) + l.legendH
 		dataH := min(dataW*vg.Length(hw), mapMaxH, avail/vg.Length(rows)-chrome)
@@ -492,10 +872,22 @@ func mapFigure(r *Results) (figure, bool) {
 	groups = groups[:lay.shown]
 	rows := (len(groups) + cols - 1) / cols
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
-	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together), each outline in its own colour and dash. "+
+	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
+		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
+		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
+		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
-		"Outlines follow the coarse copy's cells, so they are drawn to within one of its cells.", model, model)
+		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", maxNamed, model, model)
+	thinned := 0
+	for _, g := range groups {
+		thinned += mapKeyOf(r, g).thinned
+	}
+	if thinned > 0 {
+		f.Caption += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
+			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
+	}
+	f.Caption += " Outlines are drawn over the training and test points and under the omission marks."
 	for _, l := range marks.layers {
 		if strings.HasSuffix(l.label, " marks)") {
 			f.Caption += fmt.Sprintf(" A layer of more than %d points is drawn with one mark where several fall within 1/%d of the map's width (the key gives both counts).", crowdedMarks, markLattice)
@@ -535,7 +927,7 @@ func mapFigure(r *Results) (figure, bool) {
 		barC.Min.X += vg.Points(8)
 		drawLegendRows(keyC, sharedRows)
 		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
-		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model)
+		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model, barPixels(pv.Width).suitability)
 		if kmPerPt > 0 {
 			drawScaleBar(scaleC, kmPerPt)
 		}
@@ -564,15 +956,14 @@ func fitAspect(p *plot.Plot, c draw.Canvas, west, south, east, north, aspect flo
 }
 
 // drawSuitabilityBar draws a horizontal colour bar of the suitability
-// ramp from lo to hi in c.
-func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string) {
+// ramp from lo to hi in c; the bar's image is n pixels wide.
+func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string, n int) {
 	if !(hi > lo) {
 		hi = lo + 1
 	}
-	const n = 128
 	img := image.NewRGBA(image.Rect(0, 0, n, 1))
 	for x := range n {
-		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/n))
+		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/float64(n)))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
 	p.Add(plotter.NewImage(img, lo, 0, hi, 1))

@@ -16,6 +16,7 @@ import (
 // metricPoint is one marker of the score-against-area figure.
 type metricPoint struct {
 	area, v float64
+	chain   string  // the extent's nested chain, "" for none
 	lo, hi  float64 // the bar, when bar is true
 	bar     bool
 }
@@ -30,6 +31,10 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 	for _, id := range r.Sensitivity.ScoredExtents {
 		scored[id] = true
 	}
+	chainOf := map[string]string{}
+	for _, e := range r.Extents {
+		chainOf[e.ID] = e.Chain
+	}
 	var pts []metricPoint
 	for i := range r.Scores {
 		sc := &r.Scores[i]
@@ -38,6 +43,7 @@ func metricPoints(r *Results, m MetricInfo, model string) []metricPoint {
 		}
 		if p, ok := metricPointOf(m, sc, r.Settings.PairedResamples); ok {
 			p.area = sc.AreaKm2
+			p.chain = chainOf[sc.Extent]
 			pts = append(pts, p)
 		}
 	}
@@ -129,8 +135,36 @@ type metricPanel struct {
 	m   MetricInfo
 	pts [][]metricPoint // per model, in Sensitivity.ModelNames order
 	// nulls holds each null's values against the extent area (km²), in
-	// Results.Models order: drawn as grey dotted reference lines.
-	nulls []plotter.XYs
+	// Results.Models order: drawn as grey dotted reference lines;
+	// nullChains the nested chain of each value's extent.
+	nulls      []plotter.XYs
+	nullChains [][]string
+}
+
+// chainLines returns, of the points xys with the nested chains chains
+// (by area), one polyline per chain of at least two points, in order of
+// each chain's first point: a line joins the members of one chain, whose
+// areas grow with a single setting, and never an extent of one kind to
+// one of another, where a zigzag would read as noise.
+func chainLines(xys plotter.XYs, chains []string) []plotter.XYs {
+	var order []string
+	by := map[string]plotter.XYs{}
+	for i, xy := range xys {
+		if chains[i] == "" {
+			continue
+		}
+		if _, ok := by[chains[i]]; !ok {
+			order = append(order, chains[i])
+		}
+		by[chains[i]] = append(by[chains[i]], xy)
+	}
+	var out []plotter.XYs
+	for _, ch := range order {
+		if len(by[ch]) >= 2 {
+			out = append(out, by[ch])
+		}
+	}
+	return out
 }
 
 // metricPanels returns the metrics that have at least one point, and the
@@ -150,8 +184,9 @@ func metricPanels(r *Results) ([]metricPanel, float64) {
 			}
 		}
 		for _, nm := range nulls(r) {
-			xys := nullSeries(r, m, nm.Name)
+			xys, chains := nullSeries(r, m, nm.Name)
 			pn.nulls = append(pn.nulls, xys)
+			pn.nullChains = append(pn.nullChains, chains)
 			for _, xy := range xys {
 				any = true
 				maxArea = math.Max(maxArea, xy.X)
@@ -174,6 +209,14 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 	lo, hi := math.Inf(1), math.Inf(-1)
 	amin, amax := math.Inf(1), math.Inf(-1)
 	nm := len(pn.pts)
+	most := 0
+	for _, pts := range pn.pts {
+		most = max(most, len(pts))
+	}
+	for _, xys := range pn.nulls {
+		most = max(most, len(xys))
+	}
+	scale := markerScale(most)
 	for i, pts := range pn.pts {
 		if len(pts) == 0 {
 			continue
@@ -182,10 +225,12 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 		// bars do not overlap.
 		shift := math.Pow(2, 0.05*(float64(i)-float64(nm-1)/2))
 		xys := make(plotter.XYs, len(pts))
+		chains := make([]string, len(pts))
 		var ep errPoints
 		for q, pt := range pts {
 			x := pt.area / div * shift
 			xys[q] = plotter.XY{X: x, Y: pt.v}
+			chains[q] = pt.chain
 			lo, hi = math.Min(lo, pt.v), math.Max(hi, pt.v)
 			amin, amax = math.Min(amin, pt.area/div), math.Max(amax, pt.area/div)
 			if pt.bar {
@@ -194,20 +239,27 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 				lo, hi = math.Min(lo, pt.lo), math.Max(hi, pt.hi)
 			}
 		}
-		l, sc, err := plotter.NewLinePoints(xys)
+		for _, line := range chainLines(xys, chains) {
+			l, err := plotter.NewLine(line)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
+			p.Add(l)
+		}
+		sc, err := plotter.NewScatter(xys)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure metrics: %w", err)
 		}
-		l.LineStyle = lineStyle(modelColor(i), 1, modelDash(i))
 		sc.GlyphStyle = markerStyle(i)
-		p.Add(l)
+		sc.GlyphStyle.Radius *= scale
 		if len(ep.XYs) > 0 {
 			eb, err := plotter.NewYErrorBars(ep)
 			if err != nil {
 				return nil, fmt.Errorf("report: figure metrics: %w", err)
 			}
 			eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
-			eb.CapWidth = vg.Points(3)
+			eb.CapWidth = vg.Points(3) * scale
 			p.Add(eb)
 		}
 		p.Add(sc)
@@ -222,15 +274,28 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 			lo, hi = math.Min(lo, xy.Y), math.Max(hi, xy.Y)
 			amin, amax = math.Min(amin, xy.X/div), math.Max(amax, xy.X/div)
 		}
-		l, sc, err := plotter.NewLinePoints(pts)
+		ls, gs := nullLineStyle(j)
+		gs = spriteOf(gs)
+		gs.Radius *= scale
+		for _, line := range chainLines(pts, pn.nullChains[j]) {
+			l, err := plotter.NewLine(line)
+			if err != nil {
+				return nil, fmt.Errorf("report: figure metrics: %w", err)
+			}
+			l.LineStyle = ls
+			p.Add(l)
+		}
+		sc, err := plotter.NewScatter(pts)
 		if err != nil {
 			return nil, fmt.Errorf("report: figure metrics: %w", err)
 		}
-		l.LineStyle, sc.GlyphStyle = nullLineStyle(j)
-		p.Add(l, sc)
+		sc.GlyphStyle = gs
+		p.Add(sc)
 	}
 	p.Y.Min, p.Y.Max = valueRange(pn.m.Kind, lo, hi)
 	p.X.Min, p.X.Max = amin/1.25, amax*1.25
+	// The axis is the panel less the value axis's labels and padding.
+	p.X.Tick.Marker = logTicks{W: titleW - vg.Points(10), Pt: minFontPt}
 	return p, nil
 }
 
@@ -279,9 +344,22 @@ func metricsFigure(r *Results) figure {
 	return f
 }
 
+// markerScale is the factor on the markers' size (and the bars' caps) of
+// a panel whose longest series has n points: 1 up to 20 points, then
+// shrinking as sqrt(20/n), so that a marker's area shrinks as the points
+// crowd, down to half the size at 80 points or more (our choice: from 60
+// extents on the usual 1.5 decades of area, full-size markers merged into
+// one band and the null's open circles into a grey blob).
+func markerScale(n int) vg.Length {
+	if n <= 20 {
+		return 1
+	}
+	return vg.Length(max(0.5, math.Sqrt(20/float64(n))))
+}
+
 // markerStyle is model i's marker.
 func markerStyle(i int) draw.GlyphStyle {
-	return draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)}
+	return spriteOf(draw.GlyphStyle{Color: modelColor(i), Radius: vg.Points(2.4), Shape: modelGlyph(i)})
 }
 
 // errPoints pairs points with asymmetric vertical error offsets.
@@ -293,7 +371,9 @@ type errPoints struct {
 func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
-		"every score uses the test records inside that extent (counts in the Extents table). "
+		"every score uses the test records inside that extent (counts in the Extents table). " +
+		"A line joins the extents of one nested chain (extents in no chain are markers alone), so a family of several kinds has one line per chain and model; " +
+		"past 20 extents the markers shrink as they crowd. "
 	if s := r.Sensitivity; s != nil && len(s.ScoredExtents) > 1 {
 		// Where the reference sits on the area axis.
 		for _, e := range r.Extents {

@@ -38,6 +38,17 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	for i, m := range r.Sensitivity.ModelNames {
 		modelIndex[m] = i
 	}
+	chainOf := map[string]string{}
+	for _, e := range r.Extents {
+		chainOf[e.ID] = e.Chain
+	}
+	most := 0
+	for _, an := range r.Sensitivity.AboveNull {
+		if an.Metric == "auc" {
+			most = max(most, len(an.Gaps))
+		}
+	}
+	scale := markerScale(most)
 	lo, hi := math.Inf(1), math.Inf(-1)
 	nulls := map[string]int{}
 	drawn := 0
@@ -64,6 +75,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		// A small horizontal offset per series keeps the bars apart.
 		shift := math.Pow(2, 0.03*float64(i+3*j))
 		xys := make(plotter.XYs, len(gaps))
+		chains := make([]string, len(gaps))
 		var ep struct {
 			plotter.XYs
 			plotter.YErrors
@@ -71,28 +83,39 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		for k, g := range gaps {
 			x := g.AreaKm2 / div * shift
 			xys[k] = plotter.XY{X: x, Y: g.Diff}
+			chains[k] = chainOf[g.Extent]
 			ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: g.Diff})
 			ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
 			lo, hi = math.Min(lo, x), math.Max(hi, x)
-		}
-		l, sc, err := plotter.NewLinePoints(xys)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
 		}
 		dashes := modelDash(i)
 		if j > 0 {
 			dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
 		}
-		l.LineStyle = lineStyle(modelColor(i), 1, dashes)
+		ls := lineStyle(modelColor(i), 1, dashes)
+		// A line joins the extents of one nested chain only (chainLines).
+		for _, line := range chainLines(xys, chains) {
+			l, err := plotter.NewLine(line)
+			if err != nil {
+				return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+			}
+			l.LineStyle = ls
+			p.Add(l)
+		}
+		sc, err := plotter.NewScatter(xys)
+		if err != nil {
+			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+		}
 		sc.GlyphStyle = markerStyle(i)
+		sc.GlyphStyle.Radius *= scale
 		eb, err := plotter.NewYErrorBars(ep)
 		if err != nil {
 			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
 		}
 		eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
-		eb.CapWidth = vg.Points(3)
-		p.Add(l, sc, eb)
-		ls, gs := l.LineStyle, sc.GlyphStyle
+		eb.CapWidth = vg.Points(3) * scale
+		p.Add(sc, eb)
+		gs := markerStyle(i)
 		items = append(items, legendItem{an.Model + " − " + modelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
 	}
@@ -106,6 +129,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	zero.LineStyle = draw.LineStyle{Color: nullZeroGrey, Width: vg.Points(0.8)}
 	p.Add(zero)
 	p.X.Min, p.X.Max = lo/1.25, hi*1.25
+	p.X.Tick.Marker = logTicks{W: w - vg.Points(10), Pt: minFontPt}
 	return p, items, nil
 }
 
@@ -126,7 +150,8 @@ func nullGapFigures(r *Results) []figure {
 		return nil
 	}
 	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
-		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale). " +
+		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale); " +
+			"a line joins the extents of one nested chain (extents in no chain are markers alone). " +
 			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
 		W: twoColumns, H: 90 * vg.Millimeter}
 	f.draw = func(c draw.Canvas) error {

@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -25,6 +26,47 @@ func rocExtents(r *Results) []Extent {
 	}
 	sort.SliceStable(es, func(i, j int) bool { return es[i].AreaKm2 < es[j].AreaKm2 })
 	return es
+}
+
+// rocMaxCurves is the most curves a ROC panel draws (our choice: past
+// about 16, curves of neighbouring areas share a colour and cover each
+// other; a 13-extent family keeps every curve).
+const rocMaxCurves = 16
+
+// rocShown returns the extents whose curves the ROC panels draw, in order
+// of area, and whether that is fewer than es (all usable extents, by
+// area). Up to rocMaxCurves extents, every one; past that, the base
+// region, the whole raster, and of each nested chain (and of the extents
+// in no chain) its smallest, middle and largest member, so that the panel
+// still spans every kind and the whole range of areas.
+func rocShown(es []Extent) ([]Extent, bool) {
+	if len(es) <= rocMaxCurves {
+		return es, false
+	}
+	keep := map[string]bool{}
+	byChain := map[string][]string{}
+	var chains []string
+	for _, e := range es {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep[e.ID] = true
+			continue
+		}
+		if _, ok := byChain[e.Chain]; !ok {
+			chains = append(chains, e.Chain)
+		}
+		byChain[e.Chain] = append(byChain[e.Chain], e.ID)
+	}
+	for _, ch := range chains {
+		ids := byChain[ch]
+		keep[ids[0]], keep[ids[len(ids)/2]], keep[ids[len(ids)-1]] = true, true, true
+	}
+	var out []Extent
+	for _, e := range es {
+		if keep[e.ID] {
+			out = append(out, e)
+		}
+	}
+	return out, len(out) < len(es)
 }
 
 func findCurve(r *Results, model, extent string) *Curve {
@@ -64,7 +106,8 @@ func rocFigure(r *Results) figure {
 	if len(r.Settings.E) > 0 {
 		e = r.Settings.E[0]
 	}
-	es := rocExtents(r)
+	all := rocExtents(r)
+	es, thinned := rocShown(all)
 	amin, amax := 0.0, 0.0
 	if len(es) > 0 {
 		amin, amax = es[0].AreaKm2, es[len(es)-1].AreaKm2
@@ -79,10 +122,31 @@ func rocFigure(r *Results) figure {
 	if len(nulls(r)) > 0 {
 		perNull = " (and per null, after the models)"
 	}
+	var anchors []string
+	for _, ex := range es {
+		switch ex.Kind {
+		case vocab.KindBase:
+			anchors = append(anchors, "the base region (solid magenta)")
+		case vocab.KindWholeRaster:
+			anchors = append(anchors, "the whole raster (dashed red)")
+		}
+	}
+	anchorNote := ". "
+	if len(anchors) > 0 {
+		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
+	}
 	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
-		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small). "+
+		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)%s"+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
-		"The selector under the figures names each curve.", perNull, fmtG(e))
+		"The selector under the figures names each curve.", perNull, anchorNote, fmtG(e))
+	if len(nulls(r)) > 0 {
+		f.Caption += " A null's panel is shaded light grey: a reference, not a model."
+	}
+	if thinned {
+		f.Caption += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
+			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+
+			"the selector under the figures draws any of the %d.", len(all), rocMaxCurves, len(es), len(all))
+	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
 	band := color.Gray{Y: 225}
 	var items []legendItem
@@ -90,6 +154,17 @@ func rocFigure(r *Results) figure {
 		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: band}})
 	}
 	items = append(items, legendItem{"random prediction", lineThumb{diag}})
+	if len(nulls(r)) > 0 {
+		items = append(items, legendItem{"null's panel (a reference)", boxThumb{fill: nullPanelShade}})
+	}
+	// The base region and the whole raster keep the maps' styles
+	// (anchorStyle), so that the two references read the same in every
+	// figure; the other curves are on the area ramp.
+	for _, ex := range es {
+		if ls, ok := rocAnchorStyle(ex.Kind); ok {
+			items = append(items, legendItem{ex.ID, lineThumb{ls}})
+		}
+	}
 	legend := legendRows(items, f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
 	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
@@ -109,6 +184,17 @@ func rocFigure(r *Results) figure {
 				p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
 			}
 			p.Y.Label.Text = "share of test records"
+			if isNull(r, model) {
+				// A null's panel is shaded: a reference, never one more
+				// model.
+				shade, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+				if err != nil {
+					return fmt.Errorf("report: figure roc: %w", err)
+				}
+				shade.Color = nullPanelShade
+				shade.LineStyle.Width = 0
+				p.Add(shade)
+			}
 			if e > 0 {
 				poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
 				if err != nil {
@@ -124,8 +210,17 @@ func rocFigure(r *Results) figure {
 			}
 			d.LineStyle = diag
 			p.Add(d)
-			// Largest first, so the small extents' dark curves lie on top.
-			for k := len(es) - 1; k >= 0; k-- {
+			// Largest first, so the small extents' dark curves lie on top,
+			// and the anchors last of all.
+			order := make([]int, 0, len(es))
+			for _, anchors := range []bool{false, true} {
+				for k := len(es) - 1; k >= 0; k-- {
+					if _, ok := rocAnchorStyle(es[k].Kind); ok == anchors {
+						order = append(order, k)
+					}
+				}
+			}
+			for _, k := range order {
 				ex := es[k]
 				c := findCurve(r, model, ex.ID)
 				if c == nil || !scoredFor(r, model, ex.ID) {
@@ -144,6 +239,9 @@ func rocFigure(r *Results) figure {
 					return fmt.Errorf("report: figure roc: %w", err)
 				}
 				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
+				if ls, ok := rocAnchorStyle(ex.Kind); ok {
+					l.LineStyle = ls
+				}
 				p.Add(newPaddingLine(l))
 			}
 			plots[i/cols][i%cols] = p
@@ -152,16 +250,34 @@ func rocFigure(r *Results) figure {
 		if amax > 0 {
 			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
 			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
-			drawAreaBar(barC, amin, amax)
+			var marks []float64
+			for _, ex := range es {
+				marks = append(marks, ex.AreaKm2)
+			}
+			drawAreaBar(barC, amin, amax, marks)
 		}
 		return nil
 	}
 	return f
 }
 
+// nullPanelShade fills the data area of a null's ROC panel, lighter than
+// the partial ROC band (grey 225) so that the band still shows on it.
+var nullPanelShade = color.Gray{Y: 240}
+
+// rocAnchorStyle is the ROC curve of the base region and of the whole
+// raster: their map outlines' colour and dash (anchorStyle) at the
+// curves' width; false for other kinds.
+func rocAnchorStyle(k vocab.Kind) (draw.LineStyle, bool) {
+	ls, ok := anchorStyle(k)
+	ls.Width = vg.Points(1.3)
+	return ls, ok
+}
+
 // drawAreaBar draws a vertical colour bar of the area ramp from lo to hi
-// km² (log scale) in c.
-func drawAreaBar(c draw.Canvas, lo, hi float64) {
+// km² (log scale) in c, with a short tick beside it at each of marks (the
+// areas of the curves drawn).
+func drawAreaBar(c draw.Canvas, lo, hi float64, marks []float64) {
 	div, unit := areaAxis(hi)
 	lo, hi = lo/div, hi/div
 	if !(hi > lo) {
@@ -185,4 +301,11 @@ func drawAreaBar(c draw.Canvas, lo, hi float64) {
 	da := p.DataCanvas(bc)
 	bc.Max.X -= (da.Max.X - da.Min.X) - 4*vg.Millimeter
 	p.Draw(bc)
+	da = p.DataCanvas(bc)
+	_, trY := p.Transforms(&da)
+	ls := lineStyle(ink, 0.5, nil)
+	for _, a := range marks {
+		y := trY(a / div)
+		c.StrokeLine2(ls, da.Max.X, y, da.Max.X+vg.Points(2.5), y)
+	}
 }

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
 )
 
 // Tick generators. Every label is the exact decimal of its tick's value:
@@ -108,11 +109,17 @@ func (t niceTicks) Ticks(min, max float64) []plot.Tick {
 
 // logTicks labels a log axis at 1, 2 and 5 x 10^k, with unlabelled minor
 // ticks at the other whole multiples; a range too narrow for two such
-// labels falls back to niceTicks.
-type logTicks struct{}
+// labels falls back to niceTicks. With an axis length W (points) and
+// label size Pt set, a 2 or 5 x 10^k label is dropped where it would
+// come within 3 pt of a neighbouring label (labels centred on their
+// ticks), powers of ten first, so crowded labels never touch.
+type logTicks struct {
+	W  vg.Length
+	Pt float64
+}
 
 // Ticks implements plot.Ticker.
-func (logTicks) Ticks(min, max float64) []plot.Tick {
+func (lt logTicks) Ticks(min, max float64) []plot.Tick {
 	if min <= 0 || !(max > min) {
 		return niceTicks{}.Ticks(min, max)
 	}
@@ -135,7 +142,51 @@ func (logTicks) Ticks(min, max float64) []plot.Tick {
 	if labelled < 2 {
 		return niceTicks{}.Ticks(min, max)
 	}
+	if lt.W > 0 {
+		lt.spread(ts, min, max)
+	}
 	return ts
+}
+
+// spread drops the labels of ts (ticks from min to max) that would crowd
+// their neighbours on an axis of length lt.W: powers of ten are kept, then
+// each 2 and 5 x 10^k, in order, only if it keeps 3 pt from the nearest
+// kept label on each side.
+func (lt logTicks) spread(ts []plot.Tick, min, max float64) {
+	x := func(v float64) vg.Length { return vg.Length(math.Log10(v/min)/math.Log10(max/min)) * lt.W }
+	half := func(t plot.Tick) vg.Length { return textWidth(t.Label, lt.Pt) / 2 }
+	isDecade := func(v float64) bool { return v == math.Pow10(int(math.Round(math.Log10(v)))) }
+	kept := make([]bool, len(ts))
+	for i, t := range ts {
+		kept[i] = t.Label != "" && isDecade(t.Value)
+	}
+	apart := func(i, j int) bool { // labels i < j far enough apart
+		return x(ts[j].Value)-x(ts[i].Value) >= half(ts[i])+half(ts[j])+vg.Points(3)
+	}
+	for i, t := range ts {
+		if t.Label == "" || kept[i] {
+			continue
+		}
+		ok := true
+		for j := i - 1; j >= 0 && ok; j-- {
+			if kept[j] {
+				ok = apart(j, i)
+				break
+			}
+		}
+		for j := i + 1; j < len(ts) && ok; j++ {
+			if kept[j] {
+				ok = apart(i, j)
+				break
+			}
+		}
+		kept[i] = ok
+	}
+	for i := range ts {
+		if !kept[i] {
+			ts[i].Label = ""
+		}
+	}
 }
 
 // degreeTicks labels longitude (Lon) or latitude with hemisphere letters:

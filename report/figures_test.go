@@ -477,9 +477,9 @@ func TestPartialROCPoints(t *testing.T) {
 	}
 }
 
-// TestMapPanels checks the small multiples: one panel per chain, at most
-// one outline per colour in a panel, and a chain longer than the palette
-// split into parts that keep every member once.
+// TestMapPanels checks the small multiples: one panel per chain and one
+// for the extents in no chain, every usable extent in exactly one, and no
+// colour twice in the palettes the outlines are drawn from.
 func TestMapPanels(t *testing.T) {
 	seen := map[[3]uint8]bool{}
 	for _, c := range lineColors {
@@ -491,34 +491,35 @@ func TestMapPanels(t *testing.T) {
 	}
 	r := analyzedSample(t)
 	chains := map[string]bool{}
+	noChain, usable := 0, 0
 	for _, e := range r.Extents {
-		if e.Status == vocab.StatusOK && e.Chain != "" {
+		if e.Status != vocab.StatusOK {
+			continue
+		}
+		usable++
+		if e.Chain != "" {
 			chains[e.Chain] = true
+		} else {
+			noChain = 1
 		}
 	}
 	gs := mapGroups(r)
-	if len(gs) < len(chains) {
-		t.Errorf("%d panels for %d chains", len(gs), len(chains))
+	if len(gs) != len(chains)+noChain {
+		t.Errorf("%d panels for %d chains and %d group of extents in no chain", len(gs), len(chains), noChain)
 	}
+	in := map[int]int{}
 	for _, g := range gs {
-		if len(g.members) > len(lineColors) {
-			t.Errorf("panel %s has %d outlines for %d colours", g.title, len(g.members), len(lineColors))
+		for _, ei := range g.members {
+			in[ei]++
 		}
 	}
-	members := make([]int, 14)
-	for i := range members {
-		members[i] = i
+	if len(in) != usable {
+		t.Errorf("%d of %d usable extents in a panel", len(in), usable)
 	}
-	parts := splitGroup("long", members)
-	var all []int
-	for _, p := range parts {
-		if len(p.members) > len(lineColors) {
-			t.Errorf("part %s has %d outlines", p.title, len(p.members))
+	for ei, n := range in {
+		if n != 1 {
+			t.Errorf("extent %s in %d panels", r.Extents[ei].ID, n)
 		}
-		all = append(all, p.members...)
-	}
-	if len(parts) != 3 || len(all) != len(members) {
-		t.Errorf("14 members split into %d parts holding %d", len(parts), len(all))
 	}
 }
 

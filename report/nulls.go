@@ -50,27 +50,41 @@ func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 }
 
 // nullSeries returns, for metric m, the null's value against the extent
-// area on every usable extent it is scored on, sorted by area.
-func nullSeries(r *Results, m MetricInfo, null string) plotter.XYs {
-	ok := map[string]float64{}
+// area on every usable extent it is scored on, sorted by area, and the
+// nested chain of each of those extents ("" for none).
+func nullSeries(r *Results, m MetricInfo, null string) (plotter.XYs, []string) {
+	type ext struct {
+		area  float64
+		chain string
+	}
+	ok := map[string]ext{}
 	for _, e := range r.Extents {
 		if e.Status == vocab.StatusOK && e.AreaKm2 > 0 {
-			ok[e.ID] = e.AreaKm2
+			ok[e.ID] = ext{e.AreaKm2, e.Chain}
 		}
 	}
-	var xys plotter.XYs
+	type pt struct {
+		xy    plotter.XY
+		chain string
+	}
+	var pts []pt
 	for i := range r.Scores {
 		sc := &r.Scores[i]
-		area, usable := ok[sc.Extent]
+		e, usable := ok[sc.Extent]
 		if sc.Model != null || !sc.Scored || !usable {
 			continue
 		}
 		if v, has, _, _, _, _ := metricValue(m, sc); has {
-			xys = append(xys, plotter.XY{X: area, Y: v})
+			pts = append(pts, pt{plotter.XY{X: e.area, Y: v}, e.chain})
 		}
 	}
-	sort.SliceStable(xys, func(a, b int) bool { return xys[a].X < xys[b].X })
-	return xys
+	sort.SliceStable(pts, func(a, b int) bool { return pts[a].xy.X < pts[b].xy.X })
+	xys := make(plotter.XYs, len(pts))
+	chains := make([]string, len(pts))
+	for i, p := range pts {
+		xys[i], chains[i] = p.xy, p.chain
+	}
+	return xys, chains
 }
 
 // sortingBiasRows gives one table row per extent with a defined spatial
