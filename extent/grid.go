@@ -177,15 +177,24 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		if gt[3] > 90+1e-9 || gt[3]+float64(height)*gt[5] < -90-1e-9 {
 			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f)", gt[3], gt[3]+float64(height)*gt[5])
 		}
+		// Its longitudes and latitudes are taken as WGS84's: a CRS that
+		// PROJ cannot relate to WGS84 (another planet's) is not on Earth.
+		if !sr.IsSame(wgs) {
+			t, err := godal.NewTransform(sr, wgs)
+			if err != nil {
+				return nil, notOnEarth(wkt, err)
+			}
+			t.Close()
+		}
 		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
 		return g, nil
 	}
 	if g.toLL, err = newTransforms(sr, wgs); err != nil {
-		return nil, fmt.Errorf("extent: cannot transform the raster CRS to WGS84: %w", err)
+		return nil, notOnEarth(wkt, err)
 	}
 	if g.frLL, err = newTransforms(wgs, sr); err != nil {
 		g.toLL.close()
-		return nil, fmt.Errorf("extent: cannot transform WGS84 to the raster CRS: %w", err)
+		return nil, notOnEarth(wkt, err)
 	}
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
 		lname := strings.ToLower(name)
@@ -203,6 +212,13 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		return nil, err
 	}
 	return g, nil
+}
+
+// notOnEarth is the error for a raster CRS that PROJ cannot transform to
+// or from WGS84 (err): the points, the polygons and the cell areas are all
+// WGS84's.
+func notOnEarth(wkt string, err error) error {
+	return fmt.Errorf("extent: the raster's CRS (%s) cannot be transformed to or from WGS84 (%s); areasweep places the occurrences and measures the cells on the Earth's WGS84 ellipsoid: give the raster in a CRS of the Earth (check it with gdalinfo)", crsName(wkt), gdalmsg.Cause(err.Error()))
 }
 
 // MaxGridSide is the largest number of columns or rows a grid may have,

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"reflect"
 	"sort"
 	"strings"
@@ -67,6 +69,8 @@ func vectorAdvice(cause string) string {
 	switch {
 	case strings.Contains(cause, "Non closed ring"):
 		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
+	case strings.Contains(cause, "SHAPE_RESTORE_SHX"):
+		return "; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the missing ones beside it, or export the layer again as a GeoPackage"
 	case strings.Contains(cause, "not recognized as a supported file format"):
 		return "; give a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons, and check that it opens in a GIS (a file cut short or renamed from another format does not)"
 	}
@@ -99,6 +103,10 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// GDAL's own advice names no option and would accept the
 			// broken ring: say what is wrong instead.
 			cause = "a polygon's ring does not end at its first point"
+		}
+		if strings.Contains(cause, "SHAPE_RESTORE_SHX") {
+			// GDAL's advice is a configuration option of its own.
+			cause = "the shapefile's index " + strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)) + ".shx is not beside it"
 		}
 		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, cause, hint)
 	}
@@ -207,6 +215,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				sort.Strings(names)
 				f.Close()
 				if len(names) == 0 {
+					if dbf := missingDBF(path); dbf != "" {
+						return nil, warns, fmt.Errorf("extent: %s has no field %q: its attribute table %s is not beside it; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the .dbf beside it, or export the layer again as a GeoPackage", path, field, dbf)
+					}
 					return nil, warns, fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
 				}
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
@@ -312,6 +323,22 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// missingDBF returns the name of the .dbf file a shapefile at path
+// lacks (GDAL reads a .shp without one, with no attributes), or "".
+func missingDBF(path string) string {
+	ext := filepath.Ext(path)
+	if !strings.EqualFold(ext, ".shp") {
+		return ""
+	}
+	stem := strings.TrimSuffix(path, ext)
+	for _, e := range []string{".dbf", ".DBF"} {
+		if _, err := os.Stat(stem + e); err == nil {
+			return ""
+		}
+	}
+	return filepath.Base(stem) + ".dbf"
 }
 
 // noGeometry reports a feature without geometry: godal returns a Geometry
@@ -534,22 +561,14 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 		return Shape{}, fmt.Errorf("geometry: %w", err)
 	}
 	var mp orb.MultiPolygon
-	switch v := og.(type) {
-	case orb.Polygon:
-		mp = orb.MultiPolygon{v}
-	case orb.MultiPolygon:
-		mp = v
-	case orb.Collection:
-		for _, x := range v {
-			switch p := x.(type) {
-			case orb.Polygon:
-				mp = append(mp, p)
-			case orb.MultiPolygon:
-				mp = append(mp, p...)
-			}
-		}
+	switch og.(type) {
+	case orb.Polygon, orb.MultiPolygon, orb.Collection:
+		mp = polygonsOf(nil, og)
 	default:
 		return Shape{}, fmt.Errorf("geometry is a %s, not a polygon", og.GeoJSONType())
+	}
+	if len(mp) == 0 {
+		return Shape{}, errors.New("geometry holds no polygon")
 	}
 	if g.Geographic {
 		// Put each ring in the grid's longitude range by whole turns, so a
@@ -613,6 +632,25 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 		}
 	}
 	return Shape{Grid: mp, LonLat: ll}, nil
+}
+
+// polygonsOf appends to mp the polygons of geometry x: itself, its
+// parts, or those of every collection it holds, however deeply nested (a
+// collection inside a collection, as some exports write one feature's
+// parts). Points and lines that a repair left beside the polygons hold no
+// area and are left out.
+func polygonsOf(mp orb.MultiPolygon, x orb.Geometry) orb.MultiPolygon {
+	switch v := x.(type) {
+	case orb.Polygon:
+		mp = append(mp, v)
+	case orb.MultiPolygon:
+		mp = append(mp, v...)
+	case orb.Collection:
+		for _, y := range v {
+			mp = polygonsOf(mp, y)
+		}
+	}
+	return mp
 }
 
 // checkRingLon refuses rings with an edge jumping more than 180 degrees of

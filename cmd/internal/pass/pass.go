@@ -120,13 +120,14 @@ func Open(path string) (*Raster, error) {
 		ds.Close()
 		return nil, fmt.Errorf("pass: %s has no band", path)
 	}
-	r := &Raster{Path: path, ds: ds, band: bands[0]}
-	r.nodata, r.hasNodata = r.band.NoData()
-	st := r.band.Structure()
-	r.scale, r.offset = st.Scale, st.Offset
-	if r.scale == 0 {
-		r.scale = 1
+	if msg := BandProblem(bands[0]); msg != "" {
+		ds.Close()
+		return nil, fmt.Errorf("pass: %s %s", path, msg)
 	}
+	r := &Raster{Path: path, ds: ds, band: bands[0]}
+	st := r.band.Structure()
+	r.nodata, r.hasNodata = NoData(r.band)
+	r.scale, r.offset = st.Scale, st.Offset
 	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
 	switch st.DataType {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
@@ -134,6 +135,54 @@ func Open(path string) (*Raster, error) {
 	}
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
+}
+
+// NoData returns the nodata value of band b as GDAL compares it with the
+// band's cells, and whether b has one. On a Float32 band GDAL compares
+// each cell with the nodata value rounded to float32 (its nodata mask,
+// GDALNoDataMaskBand), and a format that keeps the value as text (an ESRI
+// BIL's or ENVI file's header: NODATA -9999.99) hands it over unrounded,
+// so that no float32 cell would equal it and every cell without data
+// would be scored as data: the rounded value is returned (a value just
+// beyond the float32 range, as -3.4028235e+38 is, as the nearest float32,
+// as GDAL takes it too). Other types return the value as declared.
+func NoData(b godal.Band) (float64, bool) {
+	v, ok := b.NoData()
+	if !ok || b.Structure().DataType != godal.Float32 {
+		return v, ok
+	}
+	switch a := math.Abs(v); {
+	case a <= math.MaxFloat32:
+		v = float64(float32(v))
+	case a < 1.001*math.MaxFloat32:
+		// -3.4028235e+38, the lowest float32 as most tools print it, lies
+		// just beyond it: GDAL takes it as that value
+		// (GDALAdjustNoDataCloseToFloatMax).
+		v = math.Copysign(math.MaxFloat32, v)
+	}
+	return v, ok
+}
+
+// BandProblem says why band b cannot be scored as it declares its values,
+// or "" when it can: a band of complex numbers (a model is one real value
+// per cell; GDAL would hand over the real part alone), or a declared scale
+// of 0 (every cell would be the offset) or a scale or offset that is not a
+// finite number. The text follows the raster's path in a message.
+func BandProblem(b godal.Band) string {
+	st := b.Structure()
+	switch st.DataType {
+	case godal.CInt16, godal.CInt32, godal.CFloat32, godal.CFloat64:
+		return fmt.Sprintf("holds complex numbers (%s); a model must hold one real value per cell: write the values you mean into a real raster (gdal_translate -ot Float32 keeps the real part alone)", st.DataType)
+	}
+	switch {
+	case st.Scale == 0:
+		return fmt.Sprintf("declares a scale of 0 for its band, so every cell would read as its offset (%g); give the raster the scale it should have (e.g. gdal_translate -a_scale 1 IN OUT)", st.Offset)
+	case math.IsNaN(st.Scale) || math.IsInf(st.Scale, 0):
+		return fmt.Sprintf("declares a scale of %g for its band; give the raster a finite scale (e.g. gdal_translate -a_scale 1 IN OUT)", st.Scale)
+	case math.IsNaN(st.Offset) || math.IsInf(st.Offset, 0):
+		return fmt.Sprintf("declares an offset of %g for its band; give the raster a finite offset (e.g. gdal_translate -a_offset 0 IN OUT)", st.Offset)
+	}
+	return ""
 }
 
 // decode turns stored values into model values in place: no-data, NaN and

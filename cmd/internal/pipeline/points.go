@@ -98,7 +98,11 @@ func (s *Study) openGrid() error {
 			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 		}
-		msg, nBands := maskProblem(m.Path)
+		msg, band, nBands := maskProblem(m.Path)
+		if band != "" {
+			g.Close()
+			return fault.BadInput(fmt.Errorf("model %s: %s %s", m.Name, m.Path, band))
+		}
 		if msg != "" {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
@@ -145,17 +149,21 @@ func shellArg(path string) string {
 // without data other than by a nodata value (an alpha band, a .msk file
 // or an internal mask, as gdalwarp -dstalpha and some exports write
 // them), or "" when it does not: GDAL's mask flags are then all-valid or
-// nodata. It also returns the raster's number of bands, from the same
-// open (0 when it cannot be opened: OpenGrid has read it, and a later read
-// reports its own error).
-func maskProblem(path string) (string, int) {
+// nodata. From the same open it also returns pass.BandProblem of the
+// first band (complex values, a scale of 0, ...) and the raster's number
+// of bands (0 when it cannot be opened: OpenGrid has read it, and a later
+// read reports its own error).
+func maskProblem(path string) (mask, band string, nBands int) {
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
-		return "", 0
+		return "", "", 0
 	}
 	defer ds.Close()
 	bands := ds.Bands()
-	return maskOf(bands), len(bands)
+	if len(bands) > 0 {
+		band = pass.BandProblem(bands[0])
+	}
+	return maskOf(bands), band, len(bands)
 }
 
 // maskOf is maskProblem's reading of a raster's bands.
@@ -314,9 +322,10 @@ func (s *Study) readPoints() error {
 	// Points on no-data of the reference (first) model, from point reads.
 	// A run learns the valid cells in its first scoring pass; 'extents',
 	// which scores nothing, reads them once here.
-	r, err := pass.Open(s.models[0].Path)
+	first := s.models[0]
+	r, err := pass.Open(first.Path)
 	if err != nil {
-		return fault.BadInput(err)
+		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	if !o.ExtentsOnly {
 		// The blocks the points lie in are decoded here: kept (within
@@ -327,7 +336,7 @@ func (s *Study) readPoints() error {
 	pointVals, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
 		r.Close()
-		return fault.BadInput(err)
+		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	s.first = r
 	if o.ExtentsOnly {
@@ -335,7 +344,7 @@ func (s *Study) readPoints() error {
 		s.valid, err = r.ReadValid(g, bar.update)
 		bar.finish()
 		if err != nil {
-			return fault.BadInput(err)
+			return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 		}
 	}
 	// Which records are scored: none outside the raster or on no data,

@@ -1,0 +1,275 @@
+package main
+
+import (
+	"encoding/binary"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// wgs84WKT is EPSG:4326 as WKT, for rasters written with rasterWith.
+const wgs84WKT = `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+
+// runBadCasesH26 runs each case as TestBadInputs does and checks the same
+// things: the exit code, the words of the message, no crash output or raw
+// library words, --out absent, nothing left beside it or in the inputs'
+// folder, and every input as it was.
+func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
+	t.Helper()
+	for i, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			caseDir := filepath.Join(f.outs, "h26case"+strconv.Itoa(i))
+			os.MkdirAll(caseDir, 0o755)
+			out := filepath.Join(caseDir, "out")
+			args := append(append([]string{}, c.args...), "--out", out, "--quiet")
+			before := treeSums(t, f.dir)
+			cmd := exec.Command(areasweepBin, args...)
+			var se strings.Builder
+			cmd.Stderr = &se
+			code := exitCode(cmd.Run())
+			stderr := se.String()
+			if code != c.code {
+				t.Errorf("exit %d, want %d; stderr: %s", code, c.code, stderr)
+			}
+			for _, w := range c.words {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr does not say %q: %s", w, stderr)
+				}
+			}
+			if m := forbidden.FindString(stderr); m != "" {
+				t.Errorf("stderr holds %q: %s", m, stderr)
+			}
+			for _, raw := range []string{"4294967295", "Decode:", "SHAPE_RESTORE_SHX", "PROJ:"} {
+				if strings.Contains(stderr, raw) {
+					t.Errorf("stderr holds the library's %q: %s", raw, stderr)
+				}
+			}
+			if _, err := os.Stat(out); err == nil {
+				t.Errorf("--out %s was created", out)
+			}
+			if l := leftovers(f.dir, caseDir); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+			}
+			if after := treeSums(t, f.dir); !sameSums(before, after) {
+				t.Errorf("an input file changed or appeared: %d files before, %d after", len(before), len(after))
+			}
+		})
+	}
+}
+
+// TestBadRastersAndLayersH26: model rasters whose band holds complex
+// numbers or declares a scale of 0, a raster on another planet, GeoTIFFs
+// cut short or with a damaged compressed tile, a shapefile without its
+// .shx, and ecoregions in a shapefile without its .dbf. Each is refused
+// with exit 2 naming the model or input and the file, in plain words.
+func TestBadRastersAndLayersH26(t *testing.T) {
+	outs := t.TempDir()
+	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
+	ridge := func(i int) float64 { return f.vals[i] }
+
+	// A complex band: GDAL would hand over its real part alone.
+	complexModel := filepath.Join(f.dir, "complex.tif")
+	{
+		ds, err := godal.Create(godal.GTiff, complexModel, 1, godal.CFloat32, f.w, f.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(f.gt)
+		ds.SetProjection(wgs84WKT)
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	// A scale of 0: every cell would read as the offset (it was taken as 1).
+	scaleZero := f.rasterWith(t, "scale0.tif", f.gt, wgs84WKT, ridge)
+	{
+		ds, err := godal.Open(scaleZero, godal.Update())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Bands()[0].SetScaleOffset(0, 0); err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+	}
+	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
+	mars := f.rasterWith(t, "mars.tif", f.gt, `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`, ridge)
+
+	// A tiled, deflate-compressed GeoTIFF, then a copy with one tile's
+	// bytes overwritten and a copy cut in its last tile (uncompressed
+	// tiles: libtiff then reports a short read).
+	deflate := filepath.Join(f.dir, "deflate.tif")
+	var tileOff, tileLen int
+	{
+		ds, err := godal.Create(godal.GTiff, deflate, 1, godal.Float32, f.w, f.h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=16", "BLOCKYSIZE=16", "COMPRESS=DEFLATE"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(f.gt)
+		ds.SetProjection(wgs84WKT)
+		b := ds.Bands()[0]
+		b.SetNoData(smallNoData)
+		buf := make([]float32, f.w*f.h)
+		for i, v := range f.vals {
+			buf[i] = float32(v)
+			if math.IsNaN(v) {
+				buf[i] = smallNoData
+			}
+		}
+		if err := b.Write(0, 0, buf, f.w, f.h); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		ds, err = godal.Open(deflate)
+		if err != nil {
+			t.Fatal(err)
+		}
+		tileOff, _ = strconv.Atoi(ds.Bands()[0].Metadata("BLOCK_OFFSET_1_1", godal.Domain("TIFF")))
+		tileLen, _ = strconv.Atoi(ds.Bands()[0].Metadata("BLOCK_SIZE_1_1", godal.Domain("TIFF")))
+		ds.Close()
+		if tileOff == 0 || tileLen < 4 {
+			t.Fatalf("tile (1,1) of %s at %d, %d bytes", deflate, tileOff, tileLen)
+		}
+	}
+	corrupt, _ := os.ReadFile(deflate)
+	for i := tileOff + 2; i < tileOff+tileLen; i++ {
+		corrupt[i] = 0x55
+	}
+	corruptTile := f.file("corrupt.tif", string(corrupt))
+	plain, _ := os.ReadFile(f.model)
+	cut := f.file("cut.tif", string(plain[:len(plain)-100]))
+
+	// A shapefile without its .shx, and one without its .dbf.
+	shp := filepath.Join(f.dir, "units.shp")
+	{
+		src, err := godal.Open(f.region, godal.VectorOnly())
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst, err := src.VectorTranslate(shp, []string{"-f", "ESRI Shapefile"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst.Close()
+		src.Close()
+	}
+	for _, c := range []struct{ name, skip string }{{"noshx", ".shx"}, {"nodbf", ".dbf"}} {
+		for _, ext := range []string{".shp", ".shx", ".dbf", ".prj"} {
+			if ext == c.skip {
+				continue
+			}
+			b, err := os.ReadFile(strings.TrimSuffix(shp, ".shp") + ext)
+			if err != nil {
+				t.Fatal(err)
+			}
+			f.file(c.name+ext, string(b))
+		}
+	}
+	noSHX, noDBF := filepath.Join(f.dir, "noshx.shp"), filepath.Join(f.dir, "nodbf.shp")
+
+	runBadCasesH26(t, f, []badCase{
+		{name: "model of complex numbers", args: f.withModel(complexModel), code: 2, words: []string{"model m", "complex.tif", "complex numbers (CFloat32)", "real value per cell"}},
+		{name: "null of complex numbers", args: f.run("--null", "n="+complexModel), code: 2, words: []string{"model n", "complex.tif", "complex numbers"}},
+		{name: "extents: model of complex numbers", args: append([]string{"extents"}, f.withModel(complexModel)[1:]...), code: 2, words: []string{"model m", "complex numbers"}},
+		{name: "model with a scale of 0", args: f.withModel(scaleZero), code: 2, words: []string{"model m", "scale0.tif", "scale of 0", "gdal_translate -a_scale 1"}},
+		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
+		{name: "model with a damaged compressed tile", args: f.withModel(corruptTile), code: 2, words: []string{"model m", "corrupt.tif", "the block at column 16 row 16", "its compressed data cannot be decoded", "damaged"}},
+		{name: "model cut in its last tile", args: f.withModel(cut), code: 2, words: []string{"model m", "cut.tif", "bytes of the block are in the file", "truncated"}},
+		{name: "region shapefile without .shx", args: f.withRegion(noSHX), code: 2, words: []string{"region", "noshx.shp", "noshx.shx is not beside it", "must stay together"}},
+		{name: "ecoregions shapefile without .dbf", args: f.run("--ecoregions", noDBF, "--ecoregion-field", "unit"), code: 2, words: []string{"ecoregions", "nodbf.shp", `no field "unit"`, "nodbf.dbf is not beside it"}},
+	})
+}
+
+// writeEHdr writes a Float32 ESRI BIL of the small study's values with
+// the given nodata value both in the cells without data and, as text, in
+// the header, with a WGS84 .prj beside it.
+func writeEHdr(t *testing.T, s *smallStudy, path string, cellNoData float32, headerNoData string) {
+	t.Helper()
+	buf := make([]byte, 4*len(s.vals))
+	for i, v := range s.vals {
+		x := float32(v)
+		if math.IsNaN(v) {
+			x = cellNoData
+		}
+		binary.LittleEndian.PutUint32(buf[4*i:], math.Float32bits(x))
+	}
+	stem := strings.TrimSuffix(path, filepath.Ext(path))
+	hdr := "BYTEORDER I\nLAYOUT BIL\nNROWS " + strconv.Itoa(s.h) + "\nNCOLS " + strconv.Itoa(s.w) + "\nNBANDS 1\nNBITS 32\nPIXELTYPE FLOAT\n" +
+		"ULXMAP 10.125\nULYMAP 47.875\nXDIM 0.25\nYDIM 0.25\nNODATA " + headerNoData + "\n"
+	for name, body := range map[string][]byte{path: buf, stem + ".hdr": []byte(hdr), stem + ".prj": []byte(wgs84WKT)} {
+		if err := os.WriteFile(name, body, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+// TestInputsReadAsDeclaredH26: inputs that are valid but were misread
+// without a word, each scored exactly as its plain equivalent
+// (scores.csv byte for byte, the whole raster included, where the cells
+// without data lie):
+//   - Float32 ESRI BILs whose header writes the nodata value as text that
+//     is no float32 (-9999.99), or the lowest float32 as tools print it
+//     (-3.4028235e+38, just beyond it): GDAL compares the cells with the
+//     value rounded to float32, and so must areasweep, or every cell
+//     without data is scored as data;
+//   - a region whose polygon sits in a GeometryCollection inside a
+//     GeometryCollection: read as no polygon at all, it was taken for the
+//     whole globe.
+func TestInputsReadAsDeclaredH26(t *testing.T) {
+	s := newSmallStudy(t)
+	outs := t.TempDir()
+	run := func(t *testing.T, name string, args ...string) []byte {
+		t.Helper()
+		out := filepath.Join(outs, name)
+		base := []string{"run", "--iterations", "20", "--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--out", out, "--occurrences", s.occ}
+		_, se, code := runBin(t, append(base, args...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, se)
+		}
+		b, err := os.ReadFile(filepath.Join(out, "scores.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	want := run(t, "plain", "--model", "m="+s.model, "--region", s.region)
+	if !strings.Contains(string(want), "m,whole_raster,") {
+		t.Fatal("the plain run scores no whole_raster extent: the cells without data would not matter")
+	}
+
+	for _, c := range []struct {
+		name   string
+		cell   float32
+		header string
+	}{
+		{"nodata -9999.99", -9999.99, "-9999.99"},
+		{"nodata -3.4028235e+38", -math.MaxFloat32, "-3.4028235e+38"},
+	} {
+		t.Run("ESRI BIL "+c.name, func(t *testing.T) {
+			bil := filepath.Join(s.dir, strings.ReplaceAll(c.name, " ", "_")+".bil")
+			writeEHdr(t, s, bil, c.cell, c.header)
+			if got := run(t, filepath.Base(bil), "--model", "m="+bil, "--region", s.region); string(got) != string(want) {
+				t.Error("scores.csv differs from the run on the GeoTIFF: cells without data were scored")
+			}
+		})
+	}
+
+	t.Run("region in nested collections", func(t *testing.T) {
+		dir := filepath.Join(s.dir, "nested")
+		os.MkdirAll(dir, 0o755)
+		region := filepath.Join(dir, filepath.Base(s.region)) // scores.csv records the region's file name
+		os.WriteFile(region, []byte(polygonJSON(`{"type":"GeometryCollection","geometries":[{"type":"GeometryCollection","geometries":[`+
+			`{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,41.5],[18.5,46.5],[12.5,46.5],[12.5,41.5]]]}]}]}`, ``)), 0o644)
+		if got := run(t, "nested", "--model", "m="+s.model, "--region", region); string(got) != string(want) {
+			t.Error("scores.csv differs from the run on the plain polygon")
+		}
+	})
+}
