@@ -217,6 +217,9 @@ func (r *Raster) decode(buf []float64) {
 	}
 }
 
+// HasNoData reports whether the raster's band declares a nodata value.
+func (r *Raster) HasNoData() bool { return r.hasNodata }
+
 // Close closes the raster (and drops the blocks Sample kept).
 func (r *Raster) Close() error {
 	r.kept.release()

@@ -95,6 +95,12 @@ func (s *Study) recordExtents() error {
 	if fam.Members[0].Cells == 0 {
 		return fault.BadInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, s.models[0].Path))
 	}
+	if base := fam.Members[0]; base.TestPoints == 0 {
+		// Not an error (the report then compares the extents with another
+		// reference), but the study's own extent goes unscored: said here,
+		// where it is learnt, not only in the report.
+		s.warn(fmt.Sprintf("no scored test point lies in the base region (%s): the base extent is not scored, so no extent is compared with it (the report takes another extent as the reference); check that the region and the occurrences cover the same area", s.o.Region))
+	}
 	s.res.Extents = s.res.Extents[:0]
 	for _, m := range fam.Members {
 		s.res.Extents = append(s.res.Extents, report.Extent{

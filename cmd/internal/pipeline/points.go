@@ -529,6 +529,17 @@ func (s *Study) checksums() error {
 			return fault.BadInput(fmt.Errorf("%s: %w", in.role, errs[i]))
 		}
 	}
+	// Two models or nulls with the same bytes (one file given twice, or a
+	// copy) score alike: most likely a path typed wrong.
+	for j := range s.models {
+		for i := range j {
+			if recs[i].SHA256 == recs[j].SHA256 {
+				s.warn(fmt.Sprintf("%s (%s) holds the same bytes as %s (%s), so the two score alike; check that each names the file you meant",
+					strings.Replace(ins[j].role, ":", " ", 1), ins[j].path, strings.Replace(ins[i].role, ":", " ", 1), ins[i].path))
+				break
+			}
+		}
+	}
 	s.res.Inputs = append(s.res.Inputs, recs...)
 	if s.io.Inputs != nil {
 		var all []InputFile

@@ -1,0 +1,106 @@
+package main
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// TestSuspectInputsWarnedH26: inputs that run but most likely do not say
+// what the user meant are warned about, on the terminal and in
+// results.json, each with what to do:
+//   - a model without a nodata value whose cells without data hold -9999
+//     (scored as data: the whole raster's lowest value);
+//   - one file given as two models (they score alike);
+//   - occurrences whose test points all lie outside the base region (the
+//     base extent, the study's own, goes unscored).
+//
+// The plain study warns about none of these.
+func TestSuspectInputsWarnedH26(t *testing.T) {
+	s := newSmallStudy(t)
+	noNoData := filepath.Join(s.dir, "nonodata.tif")
+	{
+		ds, err := godal.Create(godal.GTiff, noNoData, 1, godal.Float32, s.w, s.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(s.gt)
+		ds.SetProjection(wgs84WKT)
+		buf := make([]float32, len(s.vals))
+		for i, v := range s.vals {
+			buf[i] = float32(v)
+			if math.IsNaN(v) {
+				buf[i] = -9999
+			}
+		}
+		if err := ds.Bands()[0].Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	// Test points in the raster's north-east, outside the region
+	// (12.5..18.5 E, 41.5..46.5 N).
+	outsideOcc := filepath.Join(s.dir, "outside.csv")
+	os.WriteFile(outsideOcc, []byte("lon,lat,role\n13.1,42.6,train\n14.1,43.6,train\n20.5,47.5,test\n21.2,47.1,test\n"), 0o644)
+
+	run := func(t *testing.T, args ...string) (stderr string, warnings []string) {
+		t.Helper()
+		out := filepath.Join(t.TempDir(), "out")
+		base := []string{"run", "--region", s.region, "--iterations", "5", "--region-buffers", "60", "--point-buffers", "40", "--hull-buffers", "0", "--out", out}
+		_, se, code := runBin(t, append(base, args...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, se)
+		}
+		return se, loadResults(t, out).Warnings
+	}
+	says := func(t *testing.T, stderr string, warnings []string, words ...string) {
+		t.Helper()
+		for _, list := range [][]string{{stderr}, warnings} {
+			found := false
+			for _, w := range list {
+				found = found || strings.Contains(w, words[0])
+			}
+			if !found {
+				t.Errorf("no warning %q in %q", words[0], list)
+				return
+			}
+		}
+		for _, w := range warnings {
+			if strings.Contains(w, words[0]) {
+				for _, x := range words[1:] {
+					if !strings.Contains(w, x) {
+						t.Errorf("warning %q does not say %q", w, x)
+					}
+				}
+			}
+		}
+	}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region"}
+
+	t.Run("plain study", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
+		for _, w := range suspect {
+			if strings.Contains(se, w) || strings.Contains(strings.Join(ws, "\n"), w) {
+				t.Errorf("the plain study is warned %q:\n%s", w, se)
+			}
+		}
+	})
+	t.Run("-9999 without a nodata value", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+noNoData, "--occurrences", s.occ)
+		says(t, se, ws, suspect[0], "model m", "nonodata.tif", "-9999", "scored as data", "gdal_translate -a_nodata -9999 "+noNoData)
+	})
+	t.Run("one file as two models", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)
+		says(t, se, ws, suspect[1], "model again", "as model m")
+	})
+	t.Run("no test point in the base region", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)
+		says(t, se, ws, suspect[2], s.region, "not scored")
+	})
+}
