@@ -60,7 +60,7 @@ func Register() {
 // Errors about the model grid.
 var (
 	ErrNoCRS     = errors.New("extent: raster has no coordinate reference system; assign one (e.g. gdal_edit.py -a_srs EPSG:4326 FILE)")
-	ErrRotated   = errors.New("extent: raster geotransform is rotated or south-up; warp it to a north-up grid first (gdalwarp)")
+	ErrRotated   = errors.New("extent: raster geotransform is rotated; warp it to a north-up grid first (gdalwarp)")
 	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude")
 	ErrGridsDiff = errors.New("extent: model rasters are not on one grid")
 )
@@ -121,7 +121,10 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	gt, err := ds.GeoTransform()
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s has no geotransform (%s); it must be a georeferenced raster", path, gdalmsg.Cause(err.Error()))
+		if n := len(ds.GCPs()); n > 0 {
+			return nil, fmt.Errorf("extent: %s is georeferenced by %d ground control points, not by a grid (geotransform); warp it onto a north-up grid first (e.g. gdalwarp -t_srs EPSG:4326 IN OUT)", path, n)
+		}
+		return nil, fmt.Errorf("extent: %s has no geotransform; it must be a georeferenced raster (check it with gdalinfo: it prints no Origin and Pixel Size)", path)
 	}
 	sr := ds.SpatialRef()
 	if sr == nil {
@@ -246,8 +249,17 @@ func CheckGeoTransform(width, height int, gt [6]float64) error {
 			return fmt.Errorf("extent: geotransform coefficient %d is %v; the raster's georeferencing is broken (check it with gdalinfo)", i, v)
 		}
 	}
-	if gt[2] != 0 || gt[4] != 0 || gt[1] <= 0 || gt[5] >= 0 {
+	switch {
+	case gt[2] != 0 || gt[4] != 0:
 		return ErrRotated
+	case gt[1] == 0 || gt[5] == 0:
+		return fmt.Errorf("extent: geotransform %v gives cells of %g x %g, with no width or no height; the raster's georeferencing is broken (check it with gdalinfo)", gt, math.Abs(gt[1]), math.Abs(gt[5]))
+	case gt[5] > 0:
+		// Rows from south to north, as some NetCDF and HDF exports hold
+		// them.
+		return fmt.Errorf("extent: geotransform %v runs its rows from south to north (south-up: a positive cell height); warp it to a north-up grid first (gdalwarp IN OUT writes one)", gt)
+	case gt[1] < 0:
+		return fmt.Errorf("extent: geotransform %v runs its columns from east to west (a negative cell width); warp it to a north-up grid first (gdalwarp IN OUT writes one)", gt)
 	}
 	east, south := gt[0]+float64(width)*gt[1], gt[3]+float64(height)*gt[5]
 	if math.IsInf(east, 0) || math.IsInf(south, 0) || east == gt[0] || south == gt[3] {

@@ -64,8 +64,9 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 }
 
 // TestBadRastersAndLayersH26: model rasters whose band holds complex
-// numbers or declares a scale of 0, a raster on another planet, GeoTIFFs
-// cut short or with a damaged compressed tile, a shapefile without its
+// numbers or declares a scale of 0, a raster on another planet, rasters
+// georeferenced by ground control points, south-up or with cells of no
+// height, GeoTIFFs cut short or with a damaged compressed tile, a shapefile without its
 // .shx, and ecoregions in a shapefile without its .dbf. Each is refused
 // with exit 2 naming the model or input and the file, in plain words.
 func TestBadRastersAndLayersH26(t *testing.T) {
@@ -100,6 +101,25 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
 	mars := f.rasterWith(t, "mars.tif", f.gt, `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`, ridge)
+
+	// Georeferenced by ground control points only (no geotransform), rows
+	// running south to north, and cells of no height.
+	gcp := filepath.Join(f.dir, "gcp.tif")
+	{
+		ds, err := godal.Create(godal.GTiff, gcp, 1, godal.Float32, f.w, f.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		corners := []godal.GCP{{PszId: "1", DfGCPX: 10, DfGCPY: 48}, {PszId: "2", DfGCPPixel: 48, DfGCPX: 22, DfGCPY: 48}, {PszId: "3", DfGCPLine: 32, DfGCPX: 10, DfGCPY: 40}}
+		if err := ds.SetGCPs(corners, godal.GCPProjection(wgs84WKT)); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	southUp := f.rasterWith(t, "southup.tif", [6]float64{10, 0.25, 0, 40, 0, 0.25}, wgs84WKT, ridge)
+	flat := f.rasterWith(t, "flat.tif", [6]float64{10, 0.25, 0, 48, 0, 0}, wgs84WKT, ridge)
 
 	// A tiled, deflate-compressed GeoTIFF, then a copy with one tile's
 	// bytes overwritten and a copy cut in its last tile (uncompressed
@@ -181,6 +201,9 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		{name: "extents: model of complex numbers", args: append([]string{"extents"}, f.withModel(complexModel)[1:]...), code: 2, words: []string{"model m", "complex numbers"}},
 		{name: "model with a scale of 0", args: f.withModel(scaleZero), code: 2, words: []string{"model m", "scale0.tif", "scale of 0", "gdal_translate -a_scale 1"}},
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
+		{name: "model georeferenced by ground control points", args: f.withModel(gcp), code: 2, words: []string{"model m", "gcp.tif", "3 ground control points", "gdalwarp"}},
+		{name: "model south-up", args: f.withModel(southUp), code: 2, words: []string{"model m", "southup.tif", "rows from south to north", "gdalwarp"}},
+		{name: "model with cells of no height", args: f.withModel(flat), code: 2, words: []string{"model m", "flat.tif", "0.25 x 0", "no width or no height"}},
 		{name: "model with a damaged compressed tile", args: f.withModel(corruptTile), code: 2, words: []string{"model m", "corrupt.tif", "the block at column 16 row 16", "its compressed data cannot be decoded", "damaged"}},
 		{name: "model cut in its last tile", args: f.withModel(cut), code: 2, words: []string{"model m", "cut.tif", "bytes of the block are in the file", "truncated"}},
 		{name: "region shapefile without .shx", args: f.withRegion(noSHX), code: 2, words: []string{"region", "noshx.shp", "noshx.shx is not beside it", "must stay together"}},

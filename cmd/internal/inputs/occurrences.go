@@ -371,6 +371,11 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			}
 			return strings.TrimSpace(row[c.index]), nil
 		}
+		if repeatsHeader(row, cols) {
+			// Two tables joined into one (cat a.csv b.csv): the second
+			// one's header is a record that no column can read.
+			return nil, perr(line, "", fmt.Errorf("%w: it repeats the header (line %d), as when two tables are joined into one; delete it", ErrMalformed, hdrLine))
+		}
 		var rec Record
 		rec.Line = line
 		for _, c := range []struct {
@@ -576,6 +581,17 @@ func contains(list []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// repeatsHeader reports whether row holds, in the coordinate and role
+// columns, the header's own names (case aside).
+func repeatsHeader(row []string, c columns) bool {
+	for _, col := range []column{c.lon, c.lat, c.role} {
+		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(row[col.index]), col.name) {
+			return false
+		}
+	}
+	return true
 }
 
 func allBlank(rec []string) bool {
