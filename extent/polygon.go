@@ -299,30 +299,40 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// raster's CRS, and one that runs round a pole (polar
 			// stereographic) is no crossing.
 			if d, err := densifyWholeTurns(geom, lsr); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if d != nil {
 				geom = d
 			}
 		}
 		if err := geom.Reproject(g.srs); err != nil {
-			return nil, warns, fmt.Errorf("extent: %s unit %q: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", path, id, gdalmsg.Cause(err.Error()))
+			return nil, warns, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
 		}
 		if !lsr.Geographic() && g.Geographic {
 			// A projected layer has no antimeridian of its own: its edges
 			// are short wherever they cross 180 degrees.
 			if u, err := unwrapRings(geom, g.srs); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if u != nil {
 				geom = u
 			}
 		}
 		s, err := shapeOf(geom, g)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+			return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 		}
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// unitName names the features of path unioned under id in a message:
+// the ecoregion unit, or the file alone for a region or extra layer,
+// whose features are one area (id "").
+func unitName(path, id string) string {
+	if id == "" {
+		return path
+	}
+	return fmt.Sprintf("%s unit %q", path, id)
 }
 
 // missingDBF returns the name of the .dbf file a shapefile at path

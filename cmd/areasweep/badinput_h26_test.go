@@ -45,7 +45,7 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 			if m := forbidden.FindString(stderr); m != "" {
 				t.Errorf("stderr holds %q: %s", m, stderr)
 			}
-			for _, raw := range []string{"4294967295", "Decode:", "SHAPE_RESTORE_SHX", "PROJ:"} {
+			for _, raw := range []string{"4294967295", "Decode:", "SHAPE_RESTORE_SHX", "PROJ:", `unit ""`} {
 				if strings.Contains(stderr, raw) {
 					t.Errorf("stderr holds the library's %q: %s", raw, stderr)
 				}
@@ -100,7 +100,21 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		ds.Close()
 	}
 	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
-	mars := f.rasterWith(t, "mars.tif", f.gt, `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`, ridge)
+	const marsWKT = `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`
+	mars := f.rasterWith(t, "mars.tif", f.gt, marsWKT, ridge)
+	marsRegion := filepath.Join(f.dir, "mars.gpkg")
+	{
+		src, err := godal.Open(f.region, godal.VectorOnly())
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst, err := src.VectorTranslate(marsRegion, []string{"-f", "GPKG", "-a_srs", marsWKT})
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst.Close()
+		src.Close()
+	}
 
 	// Georeferenced by ground control points only (no geotransform), rows
 	// running south to north, and cells of no height.
@@ -201,6 +215,8 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		{name: "extents: model of complex numbers", args: append([]string{"extents"}, f.withModel(complexModel)[1:]...), code: 2, words: []string{"model m", "complex numbers"}},
 		{name: "model with a scale of 0", args: f.withModel(scaleZero), code: 2, words: []string{"model m", "scale0.tif", "scale of 0", "gdal_translate -a_scale 1"}},
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
+		{name: "region on Mars", args: f.withRegion(marsRegion), code: 2, words: []string{"region: ", "mars.gpkg: cannot be reprojected to the raster CRS", "same celestial body", "check that the layer's CRS is right"}},
+		{name: "extra layer on Mars", args: f.run("--extra", "x="+marsRegion), code: 2, words: []string{"extra x: ", "mars.gpkg: cannot be reprojected"}},
 		{name: "model georeferenced by ground control points", args: f.withModel(gcp), code: 2, words: []string{"model m", "gcp.tif", "3 ground control points", "gdalwarp"}},
 		{name: "model south-up", args: f.withModel(southUp), code: 2, words: []string{"model m", "southup.tif", "rows from south to north", "gdalwarp"}},
 		{name: "model with cells of no height", args: f.withModel(flat), code: 2, words: []string{"model m", "flat.tif", "0.25 x 0", "no width or no height"}},
