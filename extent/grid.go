@@ -83,6 +83,13 @@ type Grid struct {
 	EqualArea bool
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
+	// DatumShiftM is, for a latitude-longitude grid on another datum than
+	// WGS84, the distance in metres between the grid's centre and the
+	// point with the same longitude and latitude in WGS84 (the datum
+	// shift PROJ applies there): its longitudes and latitudes are taken
+	// as WGS84's, so cells, points and polygons may be off by about that.
+	// 0 on WGS84 and on projected grids (which are transformed).
+	DatumShiftM float64
 
 	// blockFactor holds, for projected grids that are not equal-area, the
 	// ratio true/planar area of each factorStep x factorStep block of cells.
@@ -186,6 +193,14 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 			t, err := godal.NewTransform(sr, wgs)
 			if err != nil {
 				return nil, notOnEarth(wkt, err)
+			}
+			// How far WGS84 puts the grid's centre from where the grid's
+			// own datum does (0 for a CRS that PROJ takes as WGS84, such
+			// as ETRS89 without a grid of shifts).
+			x, y := []float64{gt[0] + float64(width)*gt[1]/2}, []float64{gt[3] + float64(height)*gt[5]/2}
+			ok := []bool{false}
+			if t.TransformEx(x, y, nil, ok) == nil && ok[0] {
+				g.DatumShiftM = geodesy.Distance(gt[3]+float64(height)*gt[5]/2, gt[0]+float64(width)*gt[1]/2, y[0], x[0])
 			}
 			t.Close()
 		}

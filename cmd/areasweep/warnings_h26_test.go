@@ -13,6 +13,8 @@ import (
 // TestSuspectInputsWarnedH26: inputs that run but most likely do not say
 // what the user meant are warned about, on the terminal and in
 // results.json, each with what to do:
+//   - a latitude-longitude raster on ED50, whose coordinates are read as
+//     WGS84's (about 120 m off in Italy, the ED50 to WGS84 shift);
 //   - a model without a nodata value whose cells without data hold -9999
 //     (scored as data: the whole raster's lowest value);
 //   - one file given as two models (they score alike);
@@ -81,7 +83,7 @@ func TestSuspectInputsWarnedH26(t *testing.T) {
 			}
 		}
 	}
-	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region"}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84"}
 
 	t.Run("plain study", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
@@ -90,6 +92,11 @@ func TestSuspectInputsWarnedH26(t *testing.T) {
 				t.Errorf("the plain study is warned %q:\n%s", w, se)
 			}
 		}
+	})
+	t.Run("latitude and longitude on ED50", func(t *testing.T) {
+		ed50 := writeRasterCRS(t, s, "ed50.tif", 4230)
+		se, ws := run(t, "--model", "m="+ed50, "--occurrences", s.occ)
+		says(t, se, ws, suspect[3], "model m", "ed50.tif", "EPSG:4230", " m (", "gdalwarp -t_srs EPSG:4326")
 	})
 	t.Run("-9999 without a nodata value", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+noNoData, "--occurrences", s.occ)
@@ -103,4 +110,37 @@ func TestSuspectInputsWarnedH26(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)
 		says(t, se, ws, suspect[2], s.region, "not scored")
 	})
+}
+
+// writeRasterCRS writes the small study's values as a Float32 GeoTIFF
+// with nodata, on the study's grid in the CRS EPSG:code.
+func writeRasterCRS(t *testing.T, s *smallStudy, name string, code int) string {
+	t.Helper()
+	p := filepath.Join(s.dir, name)
+	ds, err := godal.Create(godal.GTiff, p, 1, godal.Float32, s.w, s.h)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr, err := godal.NewSpatialRefFromEPSG(code)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(s.gt)
+	ds.SetSpatialRef(sr)
+	b := ds.Bands()[0]
+	b.SetNoData(smallNoData)
+	buf := make([]float32, len(s.vals))
+	for i, v := range s.vals {
+		buf[i] = float32(v)
+		if math.IsNaN(v) {
+			buf[i] = smallNoData
+		}
+	}
+	if err := b.Write(0, 0, buf, s.w, s.h); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return p
 }
