@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/binary"
 	"math"
 	"os"
@@ -8,7 +9,9 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/airbusgeo/godal"
 )
@@ -29,7 +32,11 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 			out := filepath.Join(caseDir, "out")
 			args := append(append([]string{}, c.args...), "--out", out, "--quiet")
 			before := treeSums(t, f.dir)
-			cmd := exec.Command(areasweepBin, args...)
+			// A refusal takes a second: a run still going after a minute
+			// hangs (on a named pipe, say) and fails the case.
+			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
+			defer cancel()
+			cmd := exec.CommandContext(ctx, areasweepBin, args...)
 			var se strings.Builder
 			cmd.Stderr = &se
 			code := exitCode(cmd.Run())
@@ -64,11 +71,13 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 }
 
 // TestBadRastersAndLayersH26: model rasters whose band holds complex
-// numbers or declares a scale of 0, a raster on another planet, rasters
-// georeferenced by ground control points, south-up or with cells of no
-// height, GeoTIFFs cut short or with a damaged compressed tile, a shapefile without its
-// .shx, and ecoregions in a shapefile without its .dbf. Each is refused
-// with exit 2 naming the model or input and the file, in plain words.
+// numbers or declares a scale of 0, a raster and a layer on another
+// planet, rasters georeferenced by ground control points, south-up or
+// with cells of no height, GeoTIFFs cut short or with a damaged
+// compressed tile, a shapefile without its .shx, ecoregions in a
+// shapefile without its .dbf, and a named pipe as a model or layer (GDAL
+// would wait for its writer). Each is refused with exit 2 naming the
+// model or input and the file, in plain words.
 func TestBadRastersAndLayersH26(t *testing.T) {
 	outs := t.TempDir()
 	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
@@ -209,7 +218,16 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 	noSHX, noDBF := filepath.Join(f.dir, "noshx.shp"), filepath.Join(f.dir, "nodbf.shp")
 
+	// Named pipes nobody writes to: GDAL would wait for a writer forever.
+	fifo := filepath.Join(f.dir, "pipe.tif")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+
 	runBadCasesH26(t, f, []badCase{
+		{name: "model is a named pipe", args: f.withModel(fifo), code: 2, words: []string{"model m", "pipe.tif", "not a regular file"}},
+		{name: "region is a named pipe", args: f.withRegion(fifo), code: 2, words: []string{"region", "pipe.tif", "not a regular file"}},
+		{name: "extra layer is a named pipe", args: f.run("--extra", "x="+fifo), code: 2, words: []string{"extra extent x", "pipe.tif", "not a regular file"}},
 		{name: "model of complex numbers", args: f.withModel(complexModel), code: 2, words: []string{"model m", "complex.tif", "complex numbers (CFloat32)", "real value per cell"}},
 		{name: "null of complex numbers", args: f.run("--null", "n="+complexModel), code: 2, words: []string{"model n", "complex.tif", "complex numbers"}},
 		{name: "extents: model of complex numbers", args: append([]string{"extents"}, f.withModel(complexModel)[1:]...), code: 2, words: []string{"model m", "complex numbers"}},

@@ -225,6 +225,12 @@ func mustExist(what, path string) error {
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
 	}
+	if !st.IsDir() && !st.Mode().IsRegular() && what != "occurrences" {
+		// GDAL would wait forever for a named pipe's writer, and reads a
+		// raster or layer by seeking in it: the occurrence table alone is
+		// read as a stream (a shell's <(...) included).
+		return fault.BadInput(fmt.Errorf("%s: %s is not a regular file (a named pipe, device or socket); GDAL reads rasters and layers from files: give the path of the file", what, path))
+	}
 	if st.Mode().IsRegular() {
 		f, err := os.Open(path)
 		if err != nil {
