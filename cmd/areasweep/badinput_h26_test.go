@@ -30,8 +30,11 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 			caseDir := filepath.Join(f.outs, "h26case"+strconv.Itoa(i))
 			os.MkdirAll(caseDir, 0o755)
 			out := filepath.Join(caseDir, "out")
+			if c.keepOut != "" {
+				out = c.keepOut // an existing folder, which must stay as it was
+			}
 			args := append(append([]string{}, c.args...), "--out", out, "--quiet")
-			before := treeSums(t, f.dir)
+			before, outBefore := treeSums(t, f.dir), treeSums(t, out)
 			// A refusal takes a second: a run still going after a minute
 			// hangs (on a named pipe, say) and fails the case.
 			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
@@ -57,7 +60,11 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 					t.Errorf("stderr holds the library's %q: %s", raw, stderr)
 				}
 			}
-			if _, err := os.Stat(out); err == nil {
+			if c.keepOut != "" {
+				if after := treeSums(t, out); !sameSums(outBefore, after) {
+					t.Errorf("--out %s changed: %d files before, %d after", out, len(outBefore), len(after))
+				}
+			} else if _, err := os.Stat(out); err == nil {
 				t.Errorf("--out %s was created", out)
 			}
 			if l := leftovers(f.dir, caseDir); len(l) > 0 {
@@ -75,9 +82,10 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 // planet, rasters georeferenced by ground control points, south-up or
 // with cells of no height, GeoTIFFs cut short or with a damaged
 // compressed tile, a shapefile without its .shx, ecoregions in a
-// shapefile without its .dbf, and a named pipe as a model or layer (GDAL
-// would wait for its writer). Each is refused with exit 2 naming the
-// model or input and the file, in plain words.
+// shapefile without its .dbf, a named pipe as a model or layer (GDAL
+// would wait for its writer), and --out (with --force) the folder of a
+// virtual raster's source. Each is refused with exit 2 naming the model
+// or input and the file, in plain words.
 func TestBadRastersAndLayersH26(t *testing.T) {
 	outs := t.TempDir()
 	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
@@ -218,6 +226,26 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 	noSHX, noDBF := filepath.Join(f.dir, "noshx.shp"), filepath.Join(f.dir, "nodbf.shp")
 
+	// A virtual raster in the inputs' folder whose source lies in another
+	// folder: that folder holds an input too.
+	srcDir := filepath.Join(outs, "sources")
+	os.MkdirAll(srcDir, 0o755)
+	srcTIF := filepath.Join(srcDir, "src.tif")
+	os.WriteFile(srcTIF, plain, 0o644)
+	viaVRT := filepath.Join(f.dir, "via.vrt")
+	{
+		src, err := godal.Open(srcTIF)
+		if err != nil {
+			t.Fatal(err)
+		}
+		v, err := src.Translate(viaVRT, []string{"-of", "VRT"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		v.Close()
+		src.Close()
+	}
+
 	// Named pipes nobody writes to: GDAL would wait for a writer forever.
 	fifo := filepath.Join(f.dir, "pipe.tif")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
@@ -225,6 +253,7 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 
 	runBadCasesH26(t, f, []badCase{
+		{name: "out holds a virtual raster's source, force", args: f.withModel(viaVRT, "--force"), code: 2, words: []string{"--out " + srcDir, "holds the input", "src.tif", "whatever --force says"}, keepOut: srcDir},
 		{name: "model is a named pipe", args: f.withModel(fifo), code: 2, words: []string{"model m", "pipe.tif", "not a regular file"}},
 		{name: "region is a named pipe", args: f.withRegion(fifo), code: 2, words: []string{"region", "pipe.tif", "not a regular file"}},
 		{name: "extra layer is a named pipe", args: f.run("--extra", "x="+fifo), code: 2, words: []string{"extra extent x", "pipe.tif", "not a regular file"}},

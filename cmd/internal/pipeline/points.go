@@ -550,6 +550,11 @@ func (s *Study) checksums() error {
 			}
 		}
 	}
+	for _, f := range files {
+		for _, sc := range f[min(1, len(f)):] {
+			s.sidecars = append(s.sidecars, sc.Path)
+		}
+	}
 	s.res.Inputs = append(s.res.Inputs, recs...)
 	if s.io.Inputs != nil {
 		var all []InputFile
