@@ -83,8 +83,9 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 // with cells of no height, GeoTIFFs cut short or with a damaged
 // compressed tile, a shapefile without its .shx, ecoregions in a
 // shapefile without its .dbf, a named pipe as a model or layer (GDAL
-// would wait for its writer), and --out (with --force) the folder of a
-// virtual raster's source. Each is refused with exit 2 naming the model
+// would wait for its writer), a region smaller than a cell or over cells
+// without data only (told apart from one elsewhere), and --out (with
+// --force) the folder of a virtual raster's source. Each is refused with exit 2 naming the model
 // or input and the file, in plain words.
 func TestBadRastersAndLayersH26(t *testing.T) {
 	outs := t.TempDir()
@@ -253,6 +254,10 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 
 	runBadCasesH26(t, f, []badCase{
+		{name: "region smaller than a cell", args: f.withRegion(f.file("tiny.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[13.01,43.01],[13.05,43.01],[13.05,43.05],[13.01,43.05],[13.01,43.01]]]}`, ``))), code: 2,
+			words: []string{"tiny.geojson lies over", "holds no cell's centre", "smaller or thinner than the cells of 0.25 x 0.25"}},
+		{name: "region over cells without data only", args: f.withRegion(f.file("nodataonly.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``))), code: 2,
+			words: []string{"nodataonly.geojson covers no cell with data", "cells without data only"}},
 		{name: "out holds a virtual raster's source, force", args: f.withModel(viaVRT, "--force"), code: 2, words: []string{"--out " + srcDir, "holds the input", "src.tif", "whatever --force says"}, keepOut: srcDir},
 		{name: "model is a named pipe", args: f.withModel(fifo), code: 2, words: []string{"model m", "pipe.tif", "not a regular file"}},
 		{name: "region is a named pipe", args: f.withRegion(fifo), code: 2, words: []string{"region", "pipe.tif", "not a regular file"}},
