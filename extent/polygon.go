@@ -183,16 +183,19 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if bad := invalidFeatures(layer); len(bad) > 0 {
 		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, bad, gdalmsg.Cause(err.Error()))
+			return nil, warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
 		}
 		defer fixed.Close()
 		layer = fixed.Layers()[0]
-		for _, n := range bad {
-			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, n))
+		if len(bad) == 1 {
+			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, bad[0]))
+		} else {
+			warns = append(warns, fmt.Sprintf("%s features %s had invalid geometry (e.g. self-intersections); repaired with GDAL MakeValid", path, featureList(bad)))
 		}
 	}
 	byID := map[string]*godal.Geometry{}
 	var order []string
+	var empty []int // features without geometry, skipped
 	layer.ResetReading()
 	n := 0
 	for {
@@ -239,7 +242,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			}
 		}
 		if noGeometry(geom) {
-			warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, fid))
+			empty = append(empty, fid)
 			f.Close()
 			continue
 		}
@@ -287,6 +290,13 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			order = append(order, id)
 		}
 	}
+	switch len(empty) {
+	case 0:
+	case 1:
+		warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, empty[0]))
+	default:
+		warns = append(warns, fmt.Sprintf("%s features %s have no geometry; skipped", path, featureList(empty)))
+	}
 	if len(order) == 0 {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has no polygon features", path, layer.Name())
 	}
@@ -323,6 +333,23 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// featureList lists feature numbers for one warning about them all: the
+// first ten, then how many more (a layer may hold thousands).
+func featureList(fids []int) string {
+	var b strings.Builder
+	for i, n := range fids {
+		if i == 10 {
+			fmt.Fprintf(&b, " and %d more", len(fids)-10)
+			break
+		}
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		fmt.Fprint(&b, n)
+	}
+	return b.String()
 }
 
 // unitName names the features of path unioned under id in a message:

@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -144,3 +145,43 @@ func writeRasterCRS(t *testing.T, s *smallStudy, name string, code int) string {
 	}
 	return p
 }
+
+// TestFeatureWarningsSummedUpH26: a layer with many features without
+// geometry or with invalid geometry is warned about in one line per kind,
+// listing ten features and how many more, not in one line per feature
+// (thousands of lines on the terminal and in results.json).
+func TestFeatureWarningsSummedUpH26(t *testing.T) {
+	s := newSmallStudy(t)
+	var feats []string
+	for i := 0; i < 30; i++ {
+		feats = append(feats, `{"type":"Feature","properties":{},"geometry":null}`)
+	}
+	for i := 0; i < 25; i++ { // bow-ties: each repaired
+		x := 12.5 + 0.01*float64(i)
+		feats = append(feats, `{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[`+
+			strconvF(x)+`,41.5],[18.5,46.5],[18.5,41.5],[`+strconvF(x)+`,46.5],[`+strconvF(x)+`,41.5]]]}}`)
+	}
+	region := filepath.Join(s.dir, "many.geojson")
+	os.WriteFile(region, []byte(`{"type":"FeatureCollection","features":[`+strings.Join(feats, ",")+`]}`), 0o644)
+	out := filepath.Join(t.TempDir(), "out")
+	_, se, code := runBin(t, "run", "--model", "m="+s.model, "--occurrences", s.occ, "--region", region, "--iterations", "5", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	for _, want := range []string{
+		"many.geojson features 1, 2, 3, 4, 5, 6, 7, 8, 9, 10 and 20 more have no geometry; skipped",
+		"many.geojson features 31, 32, 33, 34, 35, 36, 37, 38, 39, 40 and 15 more had invalid geometry",
+	} {
+		if n := strings.Count(se, want); n != 1 {
+			t.Errorf("stderr says %q %d times, want once:\n%s", want, n, se)
+		}
+	}
+	if n := strings.Count(se, "many.geojson feature"); n != 2 {
+		t.Errorf("%d lines about many.geojson's features, want 2", n)
+	}
+	if n := len(loadResults(t, out).Warnings); n > 5 {
+		t.Errorf("results.json holds %d warnings", n)
+	}
+}
+
+func strconvF(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
