@@ -148,8 +148,18 @@ func Open(path string) (*Raster, error) {
 // as GDAL takes it too). Other types return the value as declared.
 func NoData(b godal.Band) (float64, bool) {
 	v, ok := b.NoData()
-	if !ok || b.Structure().DataType != godal.Float32 {
+	if !ok {
 		return v, ok
+	}
+	return NoDataAs(b.Structure().DataType, v), true
+}
+
+// NoDataAs returns the nodata value v as it is compared with the cells of
+// a band of type dt (see NoData): rounded to float32 on a Float32 band,
+// as declared on the others.
+func NoDataAs(dt godal.DataType, v float64) float64 {
+	if dt != godal.Float32 {
+		return v
 	}
 	switch a := math.Abs(v); {
 	case a <= math.MaxFloat32:
@@ -160,7 +170,7 @@ func NoData(b godal.Band) (float64, bool) {
 		// (GDALAdjustNoDataCloseToFloatMax).
 		v = math.Copysign(math.MaxFloat32, v)
 	}
-	return v, ok
+	return v
 }
 
 // BandProblem says why band b cannot be scored as it declares its values,
