@@ -124,6 +124,20 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	defer ds.Close()
 	if len(ds.Bands()) == 0 {
+		if subs := subdatasets(ds); len(subs) > 0 {
+			// A NetCDF or HDF file of several variables: each is a raster
+			// of its own, named by a GDAL path, which is no local file.
+			names := make([]string, len(subs))
+			for i, sd := range subs {
+				names[i] = sd[strings.LastIndexByte(sd, ':')+1:]
+			}
+			more := ""
+			if len(names) > 8 {
+				names, more = names[:8], fmt.Sprintf(" and %d more", len(subs)-8)
+			}
+			return nil, fmt.Errorf("extent: %s holds %d rasters (%s%s), not one; extract the one to score into a file of its own (e.g. gdal_translate '%s' %s.tif) and give that file",
+				path, len(subs), strings.Join(names, ", "), more, subs[0], names[0])
+		}
 		return nil, fmt.Errorf("extent: %s has no raster band", path)
 	}
 	gt, err := ds.GeoTransform()
@@ -230,6 +244,20 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		return nil, err
 	}
 	return g, nil
+}
+
+// subdatasets returns the GDAL names of the rasters a container file
+// (NetCDF, HDF) holds, in GDAL's order: SUBDATASET_1_NAME, ...
+func subdatasets(ds *godal.Dataset) []string {
+	md := ds.Metadatas(godal.Domain("SUBDATASETS"))
+	var out []string
+	for i := 1; ; i++ {
+		name, ok := md[fmt.Sprintf("SUBDATASET_%d_NAME", i)]
+		if !ok {
+			return out
+		}
+		out = append(out, name)
+	}
 }
 
 // notOnEarth is the error for a raster CRS that PROJ cannot transform to

@@ -82,7 +82,8 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 // planet, rasters georeferenced by ground control points, south-up or
 // with cells of no height, GeoTIFFs cut short or with a damaged
 // compressed tile, a shapefile without its .shx, ecoregions in a
-// shapefile without its .dbf, a named pipe as a model or layer (GDAL
+// shapefile without its .dbf, a file of two rasters or one of them named
+// as GDAL names it (NETCDF:"x.nc":var), a named pipe as a model or layer (GDAL
 // would wait for its writer), a region smaller than a cell or over cells
 // without data only (told apart from one elsewhere), and --out (with
 // --force) the folder of a virtual raster's source. Each is refused with exit 2 naming the model
@@ -247,6 +248,25 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		src.Close()
 	}
 
+	// A GeoPackage of two raster tables: GDAL sees two subdatasets.
+	twoRasters := filepath.Join(f.dir, "two.gpkg")
+	for i, m := range []string{f.model, f.model2} {
+		src, err := godal.Open(m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		opts := []string{"-of", "GPKG", "-co", "RASTER_TABLE=suit" + strconv.Itoa(i+1)}
+		if i > 0 {
+			opts = append(opts, "-co", "APPEND_SUBDATASET=YES")
+		}
+		ds, err := src.Translate(twoRasters, opts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+		src.Close()
+	}
+
 	// Named pipes nobody writes to: GDAL would wait for a writer forever.
 	fifo := filepath.Join(f.dir, "pipe.tif")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
@@ -259,6 +279,8 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		{name: "region over cells without data only", args: f.withRegion(f.file("nodataonly.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``))), code: 2,
 			words: []string{"nodataonly.geojson covers no cell with data", "cells without data only"}},
 		{name: "out holds a virtual raster's source, force", args: f.withModel(viaVRT, "--force"), code: 2, words: []string{"--out " + srcDir, "holds the input", "src.tif", "whatever --force says"}, keepOut: srcDir},
+		{name: "model file holding two rasters", args: f.withModel(twoRasters), code: 2, words: []string{"model m", "two.gpkg holds 2 rasters (suit1, suit2), not one", "gdal_translate 'GPKG:" + twoRasters + ":suit1' suit1.tif"}},
+		{name: "model given as a GDAL subdataset name", args: f.withModel("GPKG:" + twoRasters + ":suit2"), code: 2, words: []string{"model m", "is a GDAL subdataset name, not a file", "gdal_translate GPKG:" + twoRasters + ":suit2 OUT.tif"}},
 		{name: "model is a named pipe", args: f.withModel(fifo), code: 2, words: []string{"model m", "pipe.tif", "not a regular file"}},
 		{name: "region is a named pipe", args: f.withRegion(fifo), code: 2, words: []string{"region", "pipe.tif", "not a regular file"}},
 		{name: "extra layer is a named pipe", args: f.run("--extra", "x="+fifo), code: 2, words: []string{"extra extent x", "pipe.tif", "not a regular file"}},

@@ -209,6 +209,12 @@ func crsAdvice(crs string) string {
 // with commas in one --model, --null or --extra flag.
 var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
 
+// gdalSubdataset matches GDAL's name of one raster in a container file,
+// DRIVER:file:variable, such as NETCDF:"clim.nc":bio1 or
+// HDF5:"x.h5"://grid (a driver name of two letters or more, so that a
+// Windows drive letter is not one).
+var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -219,6 +225,10 @@ func mustExist(what, path string) error {
 		if strings.Contains(what, " ") && namedItem.MatchString(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s does not exist: several NAME=PATH items were given in one flag; "+
 				"give each its own flag (--model a=x.tif --model b=y.tif) or, in a study file, a list", what, path))
+		}
+		if gdalSubdataset.MatchString(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
+				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
 		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
