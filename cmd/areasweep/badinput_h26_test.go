@@ -333,6 +333,9 @@ func writeEHdr(t *testing.T, s *smallStudy, path string, cellNoData float32, hea
 //     (-3.4028235e+38, just beyond it): GDAL compares the cells with the
 //     value rounded to float32, and so must areasweep, or every cell
 //     without data is scored as data;
+//   - a Float64 GeoTIFF whose cells without data hold a float32's
+//     -9999.99 (-9999.990234375) under the declared -9999.99, which
+//     GDAL's mask takes for no data (within its tolerance);
 //   - a region whose polygon sits in a GeometryCollection inside a
 //     GeometryCollection: read as no polygon at all, it was taken for the
 //     whole globe.
@@ -374,6 +377,37 @@ func TestInputsReadAsDeclaredH26(t *testing.T) {
 			}
 		})
 	}
+
+	t.Run("Float64 GeoTIFF holding a float32's nodata", func(t *testing.T) {
+		// Converted from a Float32 raster, its cells without data hold
+		// -9999.990234375 under the declared -9999.99: GDAL's mask takes
+		// them for no data (within its tolerance).
+		p := filepath.Join(s.dir, "float64.tif")
+		ds, err := godal.Create(godal.GTiff, p, 1, godal.Float64, s.w, s.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(s.gt)
+		ds.SetProjection(wgs84WKT)
+		b := ds.Bands()[0]
+		b.SetNoData(-9999.99)
+		buf := make([]float64, len(s.vals))
+		for i, v := range s.vals {
+			buf[i] = v
+			if math.IsNaN(v) {
+				buf[i] = float64(float32(-9999.99))
+			}
+		}
+		if err := b.Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		if got := run(t, "float64", "--model", "m="+p, "--region", s.region); string(got) != string(want) {
+			t.Error("scores.csv differs from the run on the Float32 GeoTIFF: cells without data were scored")
+		}
+	})
 
 	t.Run("region in nested collections", func(t *testing.T) {
 		dir := filepath.Join(s.dir, "nested")

@@ -38,6 +38,9 @@ type Raster struct {
 	band      godal.Band
 	nodata    float64
 	hasNodata bool
+	// near is set on Float32 and Float64 bands: cells within GDAL's
+	// tolerance of nodata are no data too (nodata.go).
+	near noDataNear
 	// scale and offset turn stored values into model values
 	// (value = stored*scale + offset), as the band declares.
 	scale, offset float64
@@ -127,6 +130,7 @@ func Open(path string) (*Raster, error) {
 	r := &Raster{Path: path, ds: ds, band: bands[0]}
 	st := r.band.Structure()
 	r.nodata, r.hasNodata = NoData(r.band)
+	r.near = newNoDataNear(st.DataType, r.nodata)
 	r.scale, r.offset = st.Scale, st.Offset
 	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
 	switch st.DataType {
@@ -135,42 +139,6 @@ func Open(path string) (*Raster, error) {
 	}
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
-}
-
-// NoData returns the nodata value of band b as GDAL compares it with the
-// band's cells, and whether b has one. On a Float32 band GDAL compares
-// each cell with the nodata value rounded to float32 (its nodata mask,
-// GDALNoDataMaskBand), and a format that keeps the value as text (an ESRI
-// BIL's or ENVI file's header: NODATA -9999.99) hands it over unrounded,
-// so that no float32 cell would equal it and every cell without data
-// would be scored as data: the rounded value is returned (a value just
-// beyond the float32 range, as -3.4028235e+38 is, as the nearest float32,
-// as GDAL takes it too). Other types return the value as declared.
-func NoData(b godal.Band) (float64, bool) {
-	v, ok := b.NoData()
-	if !ok {
-		return v, ok
-	}
-	return NoDataAs(b.Structure().DataType, v), true
-}
-
-// NoDataAs returns the nodata value v as it is compared with the cells of
-// a band of type dt (see NoData): rounded to float32 on a Float32 band,
-// as declared on the others.
-func NoDataAs(dt godal.DataType, v float64) float64 {
-	if dt != godal.Float32 {
-		return v
-	}
-	switch a := math.Abs(v); {
-	case a <= math.MaxFloat32:
-		v = float64(float32(v))
-	case a < 1.001*math.MaxFloat32:
-		// -3.4028235e+38, the lowest float32 as most tools print it, lies
-		// just beyond it: GDAL takes it as that value
-		// (GDALAdjustNoDataCloseToFloatMax).
-		v = math.Copysign(math.MaxFloat32, v)
-	}
-	return v
 }
 
 // BandProblem says why band b cannot be scored as it declares its values,
@@ -203,10 +171,10 @@ func BandProblem(b godal.Band) string {
 func (r *Raster) decode(buf []float64) {
 	nan := math.NaN()
 	if r.scale == 1 && r.offset == 0 {
-		nodata, has := r.nodata, r.hasNodata
+		nodata, has, near := r.nodata, r.hasNodata, r.near
 		for i, v := range buf {
 			switch {
-			case v-v != 0 || has && v == nodata: // v-v is NaN for NaN and ±Inf
+			case v-v != 0 || has && (v == nodata || near.bits != 0 && v >= near.lo && v <= near.hi && near.match(v, nodata)): // v-v is NaN for NaN and ±Inf
 				buf[i] = nan
 			case v == 0:
 				buf[i] = 0 // -0 becomes +0
@@ -216,7 +184,7 @@ func (r *Raster) decode(buf []float64) {
 	}
 	for i, v := range buf {
 		switch {
-		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && v == r.nodata:
+		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && (v == r.nodata || r.near.bits != 0 && v >= r.near.lo && v <= r.near.hi && r.near.match(v, r.nodata)):
 			buf[i] = math.NaN()
 		default:
 			buf[i] = v*r.scale + r.offset
