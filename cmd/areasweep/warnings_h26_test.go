@@ -17,7 +17,9 @@ import (
 //   - a latitude-longitude raster on ED50, whose coordinates are read as
 //     WGS84's (about 120 m off in Italy, the ED50 to WGS84 shift);
 //   - a model without a nodata value whose cells without data hold -9999
-//     (scored as data: the whole raster's lowest value);
+//     (scored as data: the whole raster's lowest value), or one whose
+//     cells without data hold the lowest float32 under another declared
+//     nodata value;
 //   - one file given as two models (they score alike);
 //   - occurrences whose test points all lie outside the base region (the
 //     base extent, the study's own, goes unscored).
@@ -102,6 +104,19 @@ func TestSuspectInputsWarnedH26(t *testing.T) {
 	t.Run("-9999 without a nodata value", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+noNoData, "--occurrences", s.occ)
 		says(t, se, ws, suspect[0], "model m", "nonodata.tif", "-9999", "scored as data", "gdal_translate -a_nodata -9999 "+noNoData)
+	})
+	t.Run("lowest float32 under another nodata value", func(t *testing.T) {
+		f := &badFixture{smallStudy: s}
+		// rasterWith declares smallNoData (-1); the cells without data
+		// hold the lowest float32 instead.
+		other := f.rasterWith(t, "othernodata.tif", s.gt, wgs84WKT, func(i int) float64 {
+			if math.IsNaN(s.vals[i]) {
+				return -math.MaxFloat32
+			}
+			return s.vals[i]
+		})
+		se, ws := run(t, "--model", "m="+other, "--occurrences", s.occ)
+		says(t, se, ws, "declares the nodata value -1, and its lowest value, -3.4028234663852886e+38", "model m", "scored as data")
 	})
 	t.Run("one file as two models", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)

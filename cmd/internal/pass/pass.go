@@ -195,8 +195,9 @@ func (r *Raster) decode(buf []float64) {
 	}
 }
 
-// HasNoData reports whether the raster's band declares a nodata value.
-func (r *Raster) HasNoData() bool { return r.hasNodata }
+// NoData returns the nodata value the raster's cells are compared with
+// (see the function NoData) and whether its band declares one.
+func (r *Raster) NoData() (float64, bool) { return r.nodata, r.hasNodata }
 
 // Close closes the raster (and drops the blocks Sample kept).
 func (r *Raster) Close() error {

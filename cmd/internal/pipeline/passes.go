@@ -55,9 +55,13 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
 		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
-	} else if r, ok := p.src.(*pass.Raster); ok && !r.HasNoData() && st.Area > 0 && noDataMarker(st.Min) {
-		s.warn(fmt.Sprintf("model %s (%s) declares no nodata value, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
-			p.Model.Name, p.Model.Path, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
+	} else if r, ok := p.src.(*pass.Raster); ok && st.Area > 0 && noDataMarker(st.Min) {
+		declared := "declares no nodata value"
+		if nd, has := r.NoData(); has {
+			declared = fmt.Sprintf("declares the nodata value %g", nd)
+		}
+		s.warn(fmt.Sprintf("model %s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
+			p.Model.Name, p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 	}
 	if sums.Valid != nil {
 		// The extents are final only once the first model has been read.
