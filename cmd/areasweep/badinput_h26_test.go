@@ -14,6 +14,8 @@ import (
 	"time"
 
 	"github.com/airbusgeo/godal"
+
+	"areasweep/extent"
 )
 
 // wgs84WKT is EPSG:4326 as WKT, for rasters written with rasterWith.
@@ -154,6 +156,25 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	southUp := f.rasterWith(t, "southup.tif", [6]float64{10, 0.25, 0, 40, 0, 0.25}, wgs84WKT, ridge)
 	flat := f.rasterWith(t, "flat.tif", [6]float64{10, 0.25, 0, 48, 0, 0}, wgs84WKT, ridge)
 
+	// Finite values whose range overflows: the report's axes were drawn
+	// over an infinite span, and the run never ended.
+	hugeRange := filepath.Join(f.dir, "hugerange.tif")
+	grid, err := extent.NewGrid(f.w, f.h, f.gt, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer grid.Close()
+	writeFloat64Raster(t, hugeRange, grid, func() []float64 {
+		v := make([]float64, len(f.vals))
+		for i, x := range f.vals {
+			v[i] = (2*x - 1) * 1.7e308
+			if math.IsNaN(x) {
+				v[i] = math.NaN()
+			}
+		}
+		return v
+	}())
+
 	// A tiled, deflate-compressed GeoTIFF, then a copy with one tile's
 	// bytes overwritten and a copy cut in its last tile (uncompressed
 	// tiles: libtiff then reports a short read).
@@ -291,6 +312,8 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
 		{name: "region on Mars", args: f.withRegion(marsRegion), code: 2, words: []string{"region: ", "mars.gpkg: cannot be reprojected to the raster CRS", "same celestial body", "check that the layer's CRS is right"}},
 		{name: "extra layer on Mars", args: f.run("--extra", "x="+marsRegion), code: 2, words: []string{"extra x: ", "mars.gpkg: cannot be reprojected"}},
+		{name: "model whose values' range overflows", args: f.withModel(hugeRange), code: 2, words: []string{"model m", "hugerange.tif run from -1.7e+308 to 1.7e+308", "beyond the largest number", "gdal_calc.py"}},
+		{name: "null whose values' range overflows", args: f.run("--null", "n="+hugeRange), code: 2, words: []string{"model n", "hugerange.tif run from"}},
 		{name: "model georeferenced by ground control points", args: f.withModel(gcp), code: 2, words: []string{"model m", "gcp.tif", "3 ground control points", "gdalwarp"}},
 		{name: "model south-up", args: f.withModel(southUp), code: 2, words: []string{"model m", "southup.tif", "rows from south to north", "gdalwarp"}},
 		{name: "model with cells of no height", args: f.withModel(flat), code: 2, words: []string{"model m", "flat.tif", "0.25 x 0", "no width or no height"}},

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -52,6 +53,12 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		// Found by the pass itself (in a merge, by every shard's rows
 		// together): no read before the pass looks for it.
 		return fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", p.Model.Name, pass.ErrNoData, p.Model.Path))
+	}
+	if st := sums.Stats; st.Area > 0 && math.IsInf(st.Max-st.Min, 0) {
+		// Each value is finite, but no number holds their range: the
+		// report's axes and colour bars are drawn over it.
+		return fault.BadInput(fmt.Errorf("model %s: the values of %s run from %g to %g, whose difference is beyond the largest number a float64 holds; divide the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/1e300\") and give that file",
+			p.Model.Name, p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
 		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
