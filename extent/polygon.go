@@ -148,10 +148,10 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	}
 	if w, err := lsr.WKT(); err != nil || w == "" {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	} else if undefinedCRS(w) {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}

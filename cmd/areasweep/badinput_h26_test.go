@@ -295,6 +295,8 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 
 	runBadCasesH26(t, f, []badCase{
+		{name: "region table of WKT without CRS", args: f.withRegion(f.file("wkt.csv", "id,WKT\n1,\"POLYGON ((12.5 41.5,18.5 41.5,18.5 46.5,12.5 46.5,12.5 41.5))\"\n")), code: 2,
+			words: []string{"wkt.csv", "has no CRS", "ogr2ogr -a_srs EPSG:4326 OUT.gpkg " + filepath.Join(f.dir, "wkt.csv")}},
 		{name: "region smaller than a cell", args: f.withRegion(f.file("tiny.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[13.01,43.01],[13.05,43.01],[13.05,43.05],[13.01,43.05],[13.01,43.01]]]}`, ``))), code: 2,
 			words: []string{"tiny.geojson lies over", "holds no cell's centre", "smaller or thinner than the cells of 0.25 x 0.25"}},
 		{name: "region over cells without data only", args: f.withRegion(f.file("nodataonly.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``))), code: 2,
