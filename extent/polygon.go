@@ -104,6 +104,11 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// broken ring: say what is wrong instead.
 			cause = "a polygon's ring does not end at its first point"
 		}
+		if cause == "crs not found" {
+			// A GeoJSON "crs" member naming a CRS PROJ does not know.
+			cause = "the CRS its \"crs\" member names is not one PROJ knows"
+			hint = "; correct the \"crs\" member, or remove it if the coordinates are longitudes and latitudes in WGS84 (GeoJSON's own CRS)"
+		}
 		if strings.Contains(cause, "SHAPE_RESTORE_SHX") {
 			// GDAL's advice is a configuration option of its own.
 			cause = "the shapefile's index " + strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)) + ".shx is not beside it"

@@ -295,6 +295,8 @@ func TestBadRastersAndLayersH26(t *testing.T) {
 	}
 
 	runBadCasesH26(t, f, []badCase{
+		{name: "region GeoJSON naming an unknown CRS", args: f.withRegion(f.file("unknowncrs.geojson", `{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"EPSG:999999"}},"features":[{"type":"Feature","properties":{},"geometry":`+squareGeom+`}]}`)), code: 2,
+			words: []string{"unknowncrs.geojson", `the CRS its "crs" member names is not one PROJ knows`, `correct the "crs" member`}},
 		{name: "region table of WKT without CRS", args: f.withRegion(f.file("wkt.csv", "id,WKT\n1,\"POLYGON ((12.5 41.5,18.5 41.5,18.5 46.5,12.5 46.5,12.5 41.5))\"\n")), code: 2,
 			words: []string{"wkt.csv", "has no CRS", "ogr2ogr -a_srs EPSG:4326 OUT.gpkg " + filepath.Join(f.dir, "wkt.csv")}},
 		{name: "region smaller than a cell", args: f.withRegion(f.file("tiny.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[13.01,43.01],[13.05,43.01],[13.05,43.05],[13.01,43.05],[13.01,43.01]]]}`, ``))), code: 2,
