@@ -276,8 +276,16 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	// numbers stay physical.
 	var pre []byte
 	var header []byte
+	var declared rune // Excel's "sep=;" line before the header
 	for {
 		line, err := br.ReadBytes('\n')
+		if t := bytes.TrimRight(line, "\r\n"); declared == 0 && len(pre) == 0 && len(t) == 5 && bytes.HasPrefix(t, []byte("sep=")) && bytes.IndexByte([]byte(",;\t"), t[4]) >= 0 {
+			// Excel writes (and reads) "sep=;" as a first line naming
+			// the delimiter; it is no header. Kept as a blank line, so
+			// that line numbers stay physical.
+			declared = rune(t[4])
+			line = []byte("\n")
+		}
 		pre = append(pre, line...)
 		if len(bytes.TrimSpace(line)) > 0 {
 			header = line
@@ -299,6 +307,9 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 			"and a role column, e.g. ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv %s, then add role", ErrNoCoordinates, name))
 	}
 	delim := detectDelimiter(header)
+	if declared != 0 {
+		delim = declared
+	}
 	if plain && delim == '\t' {
 		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
 	}

@@ -1,8 +1,11 @@
 package inputs
 
 import (
+	"reflect"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // TestRepeatedHeaderH26: two tables joined into one (cat a.csv b.csv)
@@ -34,4 +37,29 @@ func TestListExampleH26(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestExcelSepLineH26: Excel's "sep=;" first line names the delimiter and
+// is no header; line numbers stay physical (the header is line 2). Tables
+// by construction.
+func TestExcelSepLineH26(t *testing.T) {
+	want := []Record{{Line: 3, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}
+	for name, in := range map[string]string{
+		"semicolon, CRLF, BOM": bom + "sep=;\r\nlon;lat;role\r\n1,5;2,5;train\r\n-3;4;test\r\n",
+		"comma":                "sep=,\nlon,lat,role,note\n1.5,2.5,train,a;b;c\n-3,4,test,x\n",
+		"tab":                  "sep=\t\nlon\tlat\trole\n1.5\t2.5\ttrain\n-3\t4\ttest\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			got, err := ParseOccurrences(strings.NewReader(in), "occ.csv", true)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !reflect.DeepEqual(got, want) {
+				t.Errorf("records\n got %+v\nwant %+v", got, want)
+			}
+		})
+	}
+	// The line is only a hint before the header: later, it is a record.
+	_, err := ParseOccurrences(strings.NewReader("lon;lat;role\nsep=;\n1;2;train\n"), "occ.csv", true)
+	checkParseError(t, err, ErrBadNumber, "occ.csv", 2, "lon", nil)
 }
