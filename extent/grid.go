@@ -60,7 +60,7 @@ func Register() {
 // Errors about the model grid.
 var (
 	ErrNoCRS     = errors.New("extent: raster has no coordinate reference system; assign one (e.g. gdal_edit.py -a_srs EPSG:4326 FILE)")
-	ErrRotated   = errors.New("extent: raster geotransform is rotated or south-up; warp it to a north-up grid first (gdalwarp)")
+	ErrRotated   = errors.New("extent: raster geotransform is rotated; warp it to a north-up grid first (gdalwarp)")
 	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude")
 	ErrGridsDiff = errors.New("extent: model rasters are not on one grid")
 )
@@ -83,6 +83,13 @@ type Grid struct {
 	EqualArea bool
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
+	// DatumShiftM is, for a latitude-longitude grid on another datum than
+	// WGS84, the distance in metres between the grid's centre and the
+	// point with the same longitude and latitude in WGS84 (the datum
+	// shift PROJ applies there): its longitudes and latitudes are taken
+	// as WGS84's, so cells, points and polygons may be off by about that.
+	// 0 on WGS84 and on projected grids (which are transformed).
+	DatumShiftM float64
 
 	// blockFactor holds, for projected grids that are not equal-area, the
 	// ratio true/planar area of each factorStep x factorStep block of cells.
@@ -117,11 +124,28 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	defer ds.Close()
 	if len(ds.Bands()) == 0 {
+		if subs := subdatasets(ds); len(subs) > 0 {
+			// A NetCDF or HDF file of several variables: each is a raster
+			// of its own, named by a GDAL path, which is no local file.
+			names := make([]string, len(subs))
+			for i, sd := range subs {
+				names[i] = sd[strings.LastIndexByte(sd, ':')+1:]
+			}
+			more := ""
+			if len(names) > 8 {
+				names, more = names[:8], fmt.Sprintf(" and %d more", len(subs)-8)
+			}
+			return nil, fmt.Errorf("extent: %s holds %d rasters (%s%s), not one; extract the one to score into a file of its own (e.g. gdal_translate '%s' %s.tif) and give that file",
+				path, len(subs), strings.Join(names, ", "), more, subs[0], names[0])
+		}
 		return nil, fmt.Errorf("extent: %s has no raster band", path)
 	}
 	gt, err := ds.GeoTransform()
 	if err != nil {
-		return nil, fmt.Errorf("extent: %s has no geotransform (%s); it must be a georeferenced raster", path, gdalmsg.Cause(err.Error()))
+		if n := len(ds.GCPs()); n > 0 {
+			return nil, fmt.Errorf("extent: %s is georeferenced by %d ground control points, not by a grid (geotransform); warp it onto a north-up grid first (e.g. gdalwarp -t_srs EPSG:4326 IN OUT)", path, n)
+		}
+		return nil, fmt.Errorf("extent: %s has no geotransform; it must be a georeferenced raster (check it with gdalinfo: it prints no Origin and Pixel Size)", path)
 	}
 	sr := ds.SpatialRef()
 	if sr == nil {
@@ -177,15 +201,32 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		if gt[3] > 90+1e-9 || gt[3]+float64(height)*gt[5] < -90-1e-9 {
 			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f)", gt[3], gt[3]+float64(height)*gt[5])
 		}
+		// Its longitudes and latitudes are taken as WGS84's: a CRS that
+		// PROJ cannot relate to WGS84 (another planet's) is not on Earth.
+		if !sr.IsSame(wgs) {
+			t, err := godal.NewTransform(sr, wgs)
+			if err != nil {
+				return nil, notOnEarth(wkt, err)
+			}
+			// How far WGS84 puts the grid's centre from where the grid's
+			// own datum does (0 for a CRS that PROJ takes as WGS84, such
+			// as ETRS89 without a grid of shifts).
+			x, y := []float64{gt[0] + float64(width)*gt[1]/2}, []float64{gt[3] + float64(height)*gt[5]/2}
+			ok := []bool{false}
+			if t.TransformEx(x, y, nil, ok) == nil && ok[0] {
+				g.DatumShiftM = geodesy.Distance(gt[3]+float64(height)*gt[5]/2, gt[0]+float64(width)*gt[1]/2, y[0], x[0])
+			}
+			t.Close()
+		}
 		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
 		return g, nil
 	}
 	if g.toLL, err = newTransforms(sr, wgs); err != nil {
-		return nil, fmt.Errorf("extent: cannot transform the raster CRS to WGS84: %w", err)
+		return nil, notOnEarth(wkt, err)
 	}
 	if g.frLL, err = newTransforms(wgs, sr); err != nil {
 		g.toLL.close()
-		return nil, fmt.Errorf("extent: cannot transform WGS84 to the raster CRS: %w", err)
+		return nil, notOnEarth(wkt, err)
 	}
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
 		lname := strings.ToLower(name)
@@ -203,6 +244,27 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		return nil, err
 	}
 	return g, nil
+}
+
+// subdatasets returns the GDAL names of the rasters a container file
+// (NetCDF, HDF) holds, in GDAL's order: SUBDATASET_1_NAME, ...
+func subdatasets(ds *godal.Dataset) []string {
+	md := ds.Metadatas(godal.Domain("SUBDATASETS"))
+	var out []string
+	for i := 1; ; i++ {
+		name, ok := md[fmt.Sprintf("SUBDATASET_%d_NAME", i)]
+		if !ok {
+			return out
+		}
+		out = append(out, name)
+	}
+}
+
+// notOnEarth is the error for a raster CRS that PROJ cannot transform to
+// or from WGS84 (err): the points, the polygons and the cell areas are all
+// WGS84's.
+func notOnEarth(wkt string, err error) error {
+	return fmt.Errorf("extent: the raster's CRS (%s) cannot be transformed to or from WGS84 (%s); areasweep places the occurrences and measures the cells on the Earth's WGS84 ellipsoid: give the raster in a CRS of the Earth (check it with gdalinfo)", crsName(wkt), gdalmsg.Cause(err.Error()))
 }
 
 // MaxGridSide is the largest number of columns or rows a grid may have,
@@ -230,8 +292,17 @@ func CheckGeoTransform(width, height int, gt [6]float64) error {
 			return fmt.Errorf("extent: geotransform coefficient %d is %v; the raster's georeferencing is broken (check it with gdalinfo)", i, v)
 		}
 	}
-	if gt[2] != 0 || gt[4] != 0 || gt[1] <= 0 || gt[5] >= 0 {
+	switch {
+	case gt[2] != 0 || gt[4] != 0:
 		return ErrRotated
+	case gt[1] == 0 || gt[5] == 0:
+		return fmt.Errorf("extent: geotransform %v gives cells of %g x %g, with no width or no height; the raster's georeferencing is broken (check it with gdalinfo)", gt, math.Abs(gt[1]), math.Abs(gt[5]))
+	case gt[5] > 0:
+		// Rows from south to north, as some NetCDF and HDF exports hold
+		// them.
+		return fmt.Errorf("extent: geotransform %v runs its rows from south to north (south-up: a positive cell height); warp it to a north-up grid first (gdalwarp IN OUT writes one)", gt)
+	case gt[1] < 0:
+		return fmt.Errorf("extent: geotransform %v runs its columns from east to west (a negative cell width); warp it to a north-up grid first (gdalwarp IN OUT writes one)", gt)
 	}
 	east, south := gt[0]+float64(width)*gt[1], gt[3]+float64(height)*gt[5]
 	if math.IsInf(east, 0) || math.IsInf(south, 0) || east == gt[0] || south == gt[3] {

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"reflect"
 	"sort"
 	"strings"
@@ -67,6 +69,8 @@ func vectorAdvice(cause string) string {
 	switch {
 	case strings.Contains(cause, "Non closed ring"):
 		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
+	case strings.Contains(cause, "SHAPE_RESTORE_SHX"):
+		return "; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the missing ones beside it, or export the layer again as a GeoPackage"
 	case strings.Contains(cause, "not recognized as a supported file format"):
 		return "; give a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons, and check that it opens in a GIS (a file cut short or renamed from another format does not)"
 	}
@@ -99,6 +103,15 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// GDAL's own advice names no option and would accept the
 			// broken ring: say what is wrong instead.
 			cause = "a polygon's ring does not end at its first point"
+		}
+		if cause == "crs not found" {
+			// A GeoJSON "crs" member naming a CRS PROJ does not know.
+			cause = "the CRS its \"crs\" member names is not one PROJ knows"
+			hint = "; correct the \"crs\" member, or remove it if the coordinates are longitudes and latitudes in WGS84 (GeoJSON's own CRS)"
+		}
+		if strings.Contains(cause, "SHAPE_RESTORE_SHX") {
+			// GDAL's advice is a configuration option of its own.
+			cause = "the shapefile's index " + strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)) + ".shx is not beside it"
 		}
 		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, cause, hint)
 	}
@@ -140,10 +153,10 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	}
 	if w, err := lsr.WKT(); err != nil || w == "" {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; define one (e.g. ogr2ogr -a_srs EPSG:4326)", path, layer.Name())
+		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	} else if undefinedCRS(w) {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
@@ -175,16 +188,19 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if bad := invalidFeatures(layer); len(bad) > 0 {
 		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature(s) %v have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, bad, gdalmsg.Cause(err.Error()))
+			return nil, warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
 		}
 		defer fixed.Close()
 		layer = fixed.Layers()[0]
-		for _, n := range bad {
-			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, n))
+		if len(bad) == 1 {
+			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, bad[0]))
+		} else {
+			warns = append(warns, fmt.Sprintf("%s features %s had invalid geometry (e.g. self-intersections); repaired with GDAL MakeValid", path, featureList(bad)))
 		}
 	}
 	byID := map[string]*godal.Geometry{}
 	var order []string
+	var empty []int // features without geometry, skipped
 	layer.ResetReading()
 	n := 0
 	for {
@@ -207,6 +223,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				sort.Strings(names)
 				f.Close()
 				if len(names) == 0 {
+					if dbf := missingDBF(path); dbf != "" {
+						return nil, warns, fmt.Errorf("extent: %s has no field %q: its attribute table %s is not beside it; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the .dbf beside it, or export the layer again as a GeoPackage", path, field, dbf)
+					}
 					return nil, warns, fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
 				}
 				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
@@ -228,7 +247,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			}
 		}
 		if noGeometry(geom) {
-			warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, fid))
+			empty = append(empty, fid)
 			f.Close()
 			continue
 		}
@@ -276,6 +295,13 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			order = append(order, id)
 		}
 	}
+	switch len(empty) {
+	case 0:
+	case 1:
+		warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, empty[0]))
+	default:
+		warns = append(warns, fmt.Sprintf("%s features %s have no geometry; skipped", path, featureList(empty)))
+	}
 	if len(order) == 0 {
 		return nil, warns, fmt.Errorf("extent: %s layer %q has no polygon features", path, layer.Name())
 	}
@@ -288,30 +314,73 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// raster's CRS, and one that runs round a pole (polar
 			// stereographic) is no crossing.
 			if d, err := densifyWholeTurns(geom, lsr); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if d != nil {
 				geom = d
 			}
 		}
 		if err := geom.Reproject(g.srs); err != nil {
-			return nil, warns, fmt.Errorf("extent: %s unit %q: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", path, id, gdalmsg.Cause(err.Error()))
+			return nil, warns, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
 		}
 		if !lsr.Geographic() && g.Geographic {
 			// A projected layer has no antimeridian of its own: its edges
 			// are short wherever they cross 180 degrees.
 			if u, err := unwrapRings(geom, g.srs); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if u != nil {
 				geom = u
 			}
 		}
 		s, err := shapeOf(geom, g)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s unit %q: %w", path, id, err)
+			return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 		}
 		units = append(units, Unit{ID: id, Shape: s, geom: geom})
 	}
 	return units, warns, nil
+}
+
+// featureList lists feature numbers for one warning about them all: the
+// first ten, then how many more (a layer may hold thousands).
+func featureList(fids []int) string {
+	var b strings.Builder
+	for i, n := range fids {
+		if i == 10 {
+			fmt.Fprintf(&b, " and %d more", len(fids)-10)
+			break
+		}
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		fmt.Fprint(&b, n)
+	}
+	return b.String()
+}
+
+// unitName names the features of path unioned under id in a message:
+// the ecoregion unit, or the file alone for a region or extra layer,
+// whose features are one area (id "").
+func unitName(path, id string) string {
+	if id == "" {
+		return path
+	}
+	return fmt.Sprintf("%s unit %q", path, id)
+}
+
+// missingDBF returns the name of the .dbf file a shapefile at path
+// lacks (GDAL reads a .shp without one, with no attributes), or "".
+func missingDBF(path string) string {
+	ext := filepath.Ext(path)
+	if !strings.EqualFold(ext, ".shp") {
+		return ""
+	}
+	stem := strings.TrimSuffix(path, ext)
+	for _, e := range []string{".dbf", ".DBF"} {
+		if _, err := os.Stat(stem + e); err == nil {
+			return ""
+		}
+	}
+	return filepath.Base(stem) + ".dbf"
 }
 
 // noGeometry reports a feature without geometry: godal returns a Geometry
@@ -534,22 +603,14 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 		return Shape{}, fmt.Errorf("geometry: %w", err)
 	}
 	var mp orb.MultiPolygon
-	switch v := og.(type) {
-	case orb.Polygon:
-		mp = orb.MultiPolygon{v}
-	case orb.MultiPolygon:
-		mp = v
-	case orb.Collection:
-		for _, x := range v {
-			switch p := x.(type) {
-			case orb.Polygon:
-				mp = append(mp, p)
-			case orb.MultiPolygon:
-				mp = append(mp, p...)
-			}
-		}
+	switch og.(type) {
+	case orb.Polygon, orb.MultiPolygon, orb.Collection:
+		mp = polygonsOf(nil, og)
 	default:
 		return Shape{}, fmt.Errorf("geometry is a %s, not a polygon", og.GeoJSONType())
+	}
+	if len(mp) == 0 {
+		return Shape{}, errors.New("geometry holds no polygon")
 	}
 	if g.Geographic {
 		// Put each ring in the grid's longitude range by whole turns, so a
@@ -613,6 +674,25 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 		}
 	}
 	return Shape{Grid: mp, LonLat: ll}, nil
+}
+
+// polygonsOf appends to mp the polygons of geometry x: itself, its
+// parts, or those of every collection it holds, however deeply nested (a
+// collection inside a collection, as some exports write one feature's
+// parts). Points and lines that a repair left beside the polygons hold no
+// area and are left out.
+func polygonsOf(mp orb.MultiPolygon, x orb.Geometry) orb.MultiPolygon {
+	switch v := x.(type) {
+	case orb.Polygon:
+		mp = append(mp, v)
+	case orb.MultiPolygon:
+		mp = append(mp, v...)
+	case orb.Collection:
+		for _, y := range v {
+			mp = polygonsOf(mp, y)
+		}
+	}
+	return mp
 }
 
 // checkRingLon refuses rings with an edge jumping more than 180 degrees of

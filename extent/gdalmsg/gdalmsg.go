@@ -8,6 +8,7 @@ import "C"
 
 import (
 	"errors"
+	"fmt"
 	"regexp"
 	"strings"
 	"sync"
@@ -84,12 +85,30 @@ func Drain() ([]Message, int) {
 
 // libraryWords are the library function names and prefixes removed from a
 // message: they mean nothing to a user.
-var libraryWords = regexp.MustCompile(`(?i)\b(ERROR|Warning) \d+:\s*|\bTIFF[A-Za-z0-9_]*(\(\))?:?\s*|\bsqlite3?_[A-Za-z0-9_]*(\([^)]*\))?:?\s*|\bsqlite\b:?\s*|\bGEOS[A-Za-z0-9_]*(\(\))?:?\s*|\bOGR_[A-Za-z0-9_]*:?\s*|\bGDAL[A-Za-z0-9_]*\(\):?\s*|\bproj_[A-Za-z0-9_]*:?\s*|\bPointer '[A-Za-z]+' is NULL in '[A-Za-z_]+'\.?\s*`)
+var libraryWords = regexp.MustCompile(`(?i)\b(ERROR|Warning) \d+:\s*|\bTIFF[A-Za-z0-9_]*(\(\))?:?\s*|\bsqlite3?_[A-Za-z0-9_]*(\([^)]*\))?:?\s*|\bsqlite\b:?\s*|\bGEOS[A-Za-z0-9_]*(\(\))?:?\s*|\bOGR_[A-Za-z0-9_]*:?\s*|\bGDAL[A-Za-z0-9_]*\(\):?\s*|\bproj_[A-Za-z0-9_]*:?\s*|\bPROJ:\s*|\b[A-Z][A-Za-z0-9]*Decode:\s*|\bPointer '[A-Za-z]+' is NULL in '[A-Za-z_]+'\.?\s*`)
 
 // shortRead is libtiff's message for a tile or strip whose bytes end
 // early: its row and column are the library's internal counters (often
 // 4294967295, an unsigned -1), so Cause keeps only the byte counts.
-var shortRead = regexp.MustCompile(`Read error at row \d+, col \d+, (tile|strip) (\d+); got (\d+) bytes, expected (\d+)`)
+// The tile or strip number is given by some versions only (GDAL 3.6's
+// libtiff says "at scanline N" for a strip, and "at row N, col N" alone
+// for a tile).
+var shortRead = regexp.MustCompile(`Read error at (?:row \d+, col \d+|scanline \d+)(?:, (tile|strip) (\d+))?; got (\d+) bytes, expected (\d+)`)
+
+// libtiffWords are libtiff's words for a damaged block or directory, put
+// in a user's words: a compressed block that does not decode (the
+// codec's name, e.g. "ZIPDecode:", is removed with the library words),
+// and a strip directory that does not fit the image, which GDAL reports
+// when it opens a striped TIFF cut short.
+var libtiffWords = strings.NewReplacer(
+	`Bogus "StripByteCounts" field, ignoring and calculating from imagelength`, "its strip sizes do not fit the image, as in a file cut short",
+)
+
+// decodeError matches the messages of libtiff's codecs for a compressed
+// block that does not decode (deflate, LZW, PackBits, LZMA, ZSTD, LERC,
+// JPEG): their words and counters are the codec's own, so the whole line
+// is replaced.
+var decodeError = regexp.MustCompile(`(?i)^.*(Decoding error at scanline|Corrupted \w+ table at scanline|Not enough data at scanline|Using code not yet in table|Discarding \d+ bytes to avoid buffer overrun|decompress\w*\(\)|\blerc_\w+\(\)|JPEGLib|premature end of (JPEG )?data).*$`)
 
 // maxCause bounds the length of a cause line.
 const maxCause = 240
@@ -107,7 +126,16 @@ func Cause(text string) string {
 		}
 	}
 	line = libraryWords.ReplaceAllString(line, "")
-	line = shortRead.ReplaceAllString(line, "only $3 of the $4 bytes of $1 $2 are in the file")
+	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
+		sub := shortRead.FindStringSubmatch(m)
+		block := "the block"
+		if sub[1] != "" {
+			block = sub[1] + " " + sub[2]
+		}
+		return fmt.Sprintf("only %s of the %s bytes of %s are in the file", sub[3], sub[4], block)
+	})
+	line = decodeError.ReplaceAllString(line, "its compressed data cannot be decoded")
+	line = libtiffWords.Replace(line)
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")
 	if line == "" {

@@ -276,8 +276,16 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	// numbers stay physical.
 	var pre []byte
 	var header []byte
+	var declared rune // Excel's "sep=;" line before the header
 	for {
 		line, err := br.ReadBytes('\n')
+		if t := bytes.TrimRight(line, "\r\n"); declared == 0 && len(pre) == 0 && len(t) == 5 && bytes.HasPrefix(t, []byte("sep=")) && bytes.IndexByte([]byte(",;\t"), t[4]) >= 0 {
+			// Excel writes (and reads) "sep=;" as a first line naming
+			// the delimiter; it is no header. Kept as a blank line, so
+			// that line numbers stay physical.
+			declared = rune(t[4])
+			line = []byte("\n")
+		}
 		pre = append(pre, line...)
 		if len(bytes.TrimSpace(line)) > 0 {
 			header = line
@@ -299,6 +307,9 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 			"and a role column, e.g. ogr2ogr -f CSV -lco GEOMETRY=AS_XY points.csv %s, then add role", ErrNoCoordinates, name))
 	}
 	delim := detectDelimiter(header)
+	if declared != 0 {
+		delim = declared
+	}
 	if plain && delim == '\t' {
 		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
 	}
@@ -370,6 +381,11 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 					ErrMalformed, len(row), c.name, c.index+1))
 			}
 			return strings.TrimSpace(row[c.index]), nil
+		}
+		if repeatsHeader(row, cols) {
+			// Two tables joined into one (cat a.csv b.csv): the second
+			// one's header is a record that no column can read.
+			return nil, perr(line, "", fmt.Errorf("%w: it repeats the header (line %d), as when two tables are joined into one; delete it", ErrMalformed, hdrLine))
 		}
 		var rec Record
 		rec.Line = line
@@ -576,6 +592,17 @@ func contains(list []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// repeatsHeader reports whether row holds, in the coordinate and role
+// columns, the header's own names (case aside).
+func repeatsHeader(row []string, c columns) bool {
+	for _, col := range []column{c.lon, c.lat, c.role} {
+		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(row[col.index]), col.name) {
+			return false
+		}
+	}
+	return true
 }
 
 func allBlank(rec []string) bool {

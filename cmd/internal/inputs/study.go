@@ -568,16 +568,29 @@ func ParseFloatList(flag, s string) ([]float64, error) {
 		p = strings.TrimSpace(p)
 		if p == "" {
 			return nil, fmt.Errorf("%w: --%s: item %d of %q is empty; give numbers separated by commas, "+
-				"for example --%s=10,25,50", ErrFloatList, flag, i+1, s, flag)
+				"for example --%s=%s", ErrFloatList, flag, i+1, s, flag, listExample(flag))
 		}
 		v, err := parseNumber(p, false)
 		if err != nil {
 			return nil, fmt.Errorf("%w: --%s: item %d %q is not a finite number; give numbers separated by commas "+
-				"with a dot as decimal separator, for example --%s=10,25,50", ErrFloatList, flag, i+1, p, flag)
+				"with a dot as decimal separator, for example --%s=%s", ErrFloatList, flag, i+1, p, flag, listExample(flag))
 		}
 		out = append(out, v)
 	}
 	return out, nil
+}
+
+// listExample is a list of values flag accepts, for its messages: the
+// partial ROC's E lie in (0,1) and thresholds are model values; the other
+// lists are distances in km.
+func listExample(flag string) string {
+	switch flag {
+	case "e":
+		return "0.05,0.1"
+	case "thresholds":
+		return "0.25,0.5"
+	}
+	return "10,25,50"
 }
 
 // Apply copies every setting the study gives into v, except those that

@@ -38,6 +38,9 @@ type Raster struct {
 	band      godal.Band
 	nodata    float64
 	hasNodata bool
+	// near is set on Float32 and Float64 bands: cells within GDAL's
+	// tolerance of nodata are no data too (nodata.go).
+	near noDataNear
 	// scale and offset turn stored values into model values
 	// (value = stored*scale + offset), as the band declares.
 	scale, offset float64
@@ -120,13 +123,15 @@ func Open(path string) (*Raster, error) {
 		ds.Close()
 		return nil, fmt.Errorf("pass: %s has no band", path)
 	}
-	r := &Raster{Path: path, ds: ds, band: bands[0]}
-	r.nodata, r.hasNodata = r.band.NoData()
-	st := r.band.Structure()
-	r.scale, r.offset = st.Scale, st.Offset
-	if r.scale == 0 {
-		r.scale = 1
+	if msg := BandProblem(bands[0]); msg != "" {
+		ds.Close()
+		return nil, fmt.Errorf("pass: %s %s", path, msg)
 	}
+	r := &Raster{Path: path, ds: ds, band: bands[0]}
+	st := r.band.Structure()
+	r.nodata, r.hasNodata = NoData(r.band)
+	r.near = newNoDataNear(st.DataType, r.nodata)
+	r.scale, r.offset = st.Scale, st.Offset
 	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
 	switch st.DataType {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
@@ -134,6 +139,28 @@ func Open(path string) (*Raster, error) {
 	}
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
+}
+
+// BandProblem says why band b cannot be scored as it declares its values,
+// or "" when it can: a band of complex numbers (a model is one real value
+// per cell; GDAL would hand over the real part alone), or a declared scale
+// of 0 (every cell would be the offset) or a scale or offset that is not a
+// finite number. The text follows the raster's path in a message.
+func BandProblem(b godal.Band) string {
+	st := b.Structure()
+	switch st.DataType {
+	case godal.CInt16, godal.CInt32, godal.CFloat32, godal.CFloat64:
+		return fmt.Sprintf("holds complex numbers (%s); a model must hold one real value per cell: write the values you mean into a real raster (gdal_translate -ot Float32 keeps the real part alone)", st.DataType)
+	}
+	switch {
+	case st.Scale == 0:
+		return fmt.Sprintf("declares a scale of 0 for its band, so every cell would read as its offset (%g); give the raster the scale it should have (e.g. gdal_translate -a_scale 1 IN OUT)", st.Offset)
+	case math.IsNaN(st.Scale) || math.IsInf(st.Scale, 0):
+		return fmt.Sprintf("declares a scale of %g for its band; give the raster a finite scale (e.g. gdal_translate -a_scale 1 IN OUT)", st.Scale)
+	case math.IsNaN(st.Offset) || math.IsInf(st.Offset, 0):
+		return fmt.Sprintf("declares an offset of %g for its band; give the raster a finite offset (e.g. gdal_translate -a_offset 0 IN OUT)", st.Offset)
+	}
+	return ""
 }
 
 // decode turns stored values into model values in place: no-data, NaN and
@@ -144,10 +171,10 @@ func Open(path string) (*Raster, error) {
 func (r *Raster) decode(buf []float64) {
 	nan := math.NaN()
 	if r.scale == 1 && r.offset == 0 {
-		nodata, has := r.nodata, r.hasNodata
+		nodata, has, near := r.nodata, r.hasNodata, r.near
 		for i, v := range buf {
 			switch {
-			case v-v != 0 || has && v == nodata: // v-v is NaN for NaN and ±Inf
+			case v-v != 0 || has && (v == nodata || near.bits != 0 && v >= near.lo && v <= near.hi && near.match(v, nodata)): // v-v is NaN for NaN and ±Inf
 				buf[i] = nan
 			case v == 0:
 				buf[i] = 0 // -0 becomes +0
@@ -157,7 +184,7 @@ func (r *Raster) decode(buf []float64) {
 	}
 	for i, v := range buf {
 		switch {
-		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && v == r.nodata:
+		case math.IsNaN(v) || math.IsInf(v, 0) || r.hasNodata && (v == r.nodata || r.near.bits != 0 && v >= r.near.lo && v <= r.near.hi && r.near.match(v, r.nodata)):
 			buf[i] = math.NaN()
 		default:
 			buf[i] = v*r.scale + r.offset
@@ -167,6 +194,10 @@ func (r *Raster) decode(buf []float64) {
 		}
 	}
 }
+
+// NoData returns the nodata value the raster's cells are compared with
+// (see the function NoData) and whether its band declares one.
+func (r *Raster) NoData() (float64, bool) { return r.nodata, r.hasNodata }
 
 // Close closes the raster (and drops the blocks Sample kept).
 func (r *Raster) Close() error {

@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 
+	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 )
 
@@ -96,7 +97,10 @@ func auxProblem(path string) (what string, declared bool) {
 		}
 		if b.NoData != nil {
 			if v, ok := parsePAMNumber(*b.NoData); ok {
-				own, has := bands[0].NoData()
+				// Both as the cells are compared with them: a Float32
+				// band's own -9999.99 is held as a float32.
+				own, has := pass.NoData(bands[0])
+				v := pass.NoDataAs(bands[0].Structure().DataType, v)
 				if !has || !(own == v || math.IsNaN(own) && math.IsNaN(v)) {
 					set = append(set, fmt.Sprintf("the nodata value %s", strings.TrimSpace(*b.NoData)))
 				}

@@ -52,7 +52,7 @@ func (s *Study) buildFamily() error {
 	}
 	s.nWarn = len(fam.Warnings)
 	if fam.Members[0].Cells == 0 {
-		return fault.BadInput(fmt.Errorf("%w: %s covers no cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, o.Region, s.models[0].Path))
+		return fault.BadInput(s.noOverlap(""))
 	}
 	if s.valid != nil {
 		if err := s.recordExtents(); err != nil {
@@ -89,11 +89,33 @@ func (s *Study) Clip(valid extent.Valid) error {
 	return s.recordExtents()
 }
 
+// noOverlap explains a base region that holds no cell (valid: "valid "
+// when the cells without data were left out): a region lying over the
+// raster holds no cell's centre (the rule of Fill), so it is smaller or
+// thinner than a cell; one elsewhere is in another area or CRS.
+func (s *Study) noOverlap(valid string) error {
+	g, b := s.grid, s.fam.Base.Grid.Bound()
+	gb := g.Bounds()
+	if len(s.fam.Base.Grid) > 0 && b.Max[0] > gb[0] && b.Min[0] < gb[2] && b.Max[1] > gb[1] && b.Min[1] < gb[3] {
+		if valid != "" {
+			return fmt.Errorf("%w: %s covers no cell with data of %s (it lies over cells without data only); check that this is the region you meant", extent.ErrNoOverlap, s.o.Region, s.models[0].Path)
+		}
+		return fmt.Errorf("%w: %s lies over %s but holds no cell's centre (a cell belongs to a polygon when its centre does): it is smaller or thinner than the cells of %g x %g; draw the region larger than a cell", extent.ErrNoOverlap, s.o.Region, s.models[0].Path, g.GeoTransform[1], -g.GeoTransform[5])
+	}
+	return fmt.Errorf("%w: %s covers no %scell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, valid, s.models[0].Path)
+}
+
 // recordExtents copies the (clipped) family into Results.Extents.
 func (s *Study) recordExtents() error {
 	fam := s.fam
 	if fam.Members[0].Cells == 0 {
-		return fault.BadInput(fmt.Errorf("%w: %s covers no valid cell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, s.models[0].Path))
+		return fault.BadInput(s.noOverlap("valid "))
+	}
+	if base := fam.Members[0]; base.TestPoints == 0 {
+		// Not an error (the report then compares the extents with another
+		// reference), but the study's own extent goes unscored: said here,
+		// where it is learnt, not only in the report.
+		s.warn(fmt.Sprintf("no scored test point lies in the base region (%s): the base extent is not scored, so no extent is compared with it (the report takes another extent as the reference); check that the region and the occurrences cover the same area", s.o.Region))
 	}
 	s.res.Extents = s.res.Extents[:0]
 	for _, m := range fam.Members {

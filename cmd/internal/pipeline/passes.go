@@ -4,7 +4,10 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
+	"path/filepath"
 	"slices"
+	"strings"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -51,8 +54,21 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		// together): no read before the pass looks for it.
 		return fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", p.Model.Name, pass.ErrNoData, p.Model.Path))
 	}
+	if st := sums.Stats; st.Area > 0 && math.IsInf(st.Max-st.Min, 0) {
+		// Each value is finite, but no number holds their range: the
+		// report's axes and colour bars are drawn over it.
+		return fault.BadInput(fmt.Errorf("model %s: the values of %s run from %g to %g, whose difference is beyond the largest number a float64 holds; divide the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/1e300\") and give that file",
+			p.Model.Name, p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
+	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
 		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
+	} else if r, ok := p.src.(*pass.Raster); ok && st.Area > 0 && noDataMarker(st.Min) {
+		declared := "declares no nodata value"
+		if nd, has := r.NoData(); has {
+			declared = fmt.Sprintf("declares the nodata value %g", nd)
+		}
+		s.warn(fmt.Sprintf("model %s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
+			p.Model.Name, p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 	}
 	if sums.Valid != nil {
 		// The extents are final only once the first model has been read.
@@ -61,6 +77,20 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		}
 	}
 	return s.Score(p, sums)
+}
+
+// noDataMarker reports whether v is a value that tools write into cells
+// without data: -9999 and its longer cousins, the lowest Int16 and Int32,
+// and the lowest float32 or float64 (or a value near them, as printed
+// with fewer digits). A suitability model does not hold such a value as
+// its lowest: a raster without a nodata value whose minimum is one has
+// most likely lost its declaration.
+func noDataMarker(v float64) bool {
+	switch v {
+	case -9999, -99999, -999999, -32768, -2147483648:
+		return true
+	}
+	return v <= -1e38
 }
 
 // Plan is one pass ready to run: the model, the source of its cells, its
@@ -156,7 +186,7 @@ func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 	} else {
 		var err error
 		if r, err = pass.Open(m.Path); err != nil {
-			return nil, fault.BadInput(err)
+			return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 		}
 		if s.streams {
 			r.KeepBlocks(keptBlockBytes, s.rows)
@@ -182,7 +212,7 @@ func (s *Study) layout(p *Plan, opts ...metrics.LayoutOption) error {
 		// Read when the points were placed.
 		vals, valid = slices.Clone(s.firstVals), slices.Clone(s.firstValid)
 	} else if vals, valid, err = p.src.Sample(s.grid, s.cell); err != nil {
-		return fault.BadInput(err)
+		return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 	}
 	p.vals, p.valid = vals, valid
 	var layoutVals []float64

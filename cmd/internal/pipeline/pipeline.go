@@ -79,13 +79,17 @@ type Study struct {
 	first *pass.Raster
 	// streams: the passes read their sums with Stream (SetSums clears it).
 	streams bool
-	fam     *extent.Family
-	res     *report.Results
-	dir     *outdir.Dir
-	ownDir  bool
-	stage   string
-	valid   extent.Valid // nil until known: the family is then unclipped
-	nWarn   int          // family warnings already reported
+	// sidecars are the files read with the inputs (a raster's .prj, a
+	// virtual raster's sources, a shapefile's .dbf), from the checksums:
+	// --out may not hold them either.
+	sidecars []string
+	fam      *extent.Family
+	res      *report.Results
+	dir      *outdir.Dir
+	ownDir   bool
+	stage    string
+	valid    extent.Valid // nil until known: the family is then unclipped
+	nWarn    int          // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator
@@ -133,7 +137,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		if o.Shard {
 			open = outdir.OpenShard
 		}
-		if s.dir, err = open(o.Out, o.Force, append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...)); err != nil {
+		if s.dir, err = open(o.Out, o.Force, append(append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...), s.sidecars...)); err != nil {
 			s.Close() // the first model's raster
 			return nil, err
 		}

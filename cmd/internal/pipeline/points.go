@@ -98,7 +98,11 @@ func (s *Study) openGrid() error {
 			}
 			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
 		}
-		msg, nBands := maskProblem(m.Path)
+		msg, band, nBands := maskProblem(m.Path)
+		if band != "" {
+			g.Close()
+			return fault.BadInput(fmt.Errorf("model %s: %s %s", m.Name, m.Path, band))
+		}
 		if msg != "" {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
@@ -110,6 +114,10 @@ func (s *Study) openGrid() error {
 		}
 		if i == 0 {
 			s.grid = g
+			if g.DatumShiftM >= 1 {
+				s.warn(fmt.Sprintf("model %s: %s is in latitude and longitude on another datum than WGS84 (%s); areasweep reads them as WGS84's, so the occurrences lie about %.0f m (%.2g of a cell side) from where that datum puts them: if that matters at this resolution, warp the raster to WGS84 (e.g. gdalwarp -t_srs EPSG:4326 %s %s)",
+					m.Name, m.Path, shortText(g.CRS, 40), g.DatumShiftM, g.DatumShiftM/g.MinCellSideM(), shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_wgs84.tif")))
+			}
 			continue
 		}
 		if d := s.grid.SameAs(g); d != "" {
@@ -145,17 +153,21 @@ func shellArg(path string) string {
 // without data other than by a nodata value (an alpha band, a .msk file
 // or an internal mask, as gdalwarp -dstalpha and some exports write
 // them), or "" when it does not: GDAL's mask flags are then all-valid or
-// nodata. It also returns the raster's number of bands, from the same
-// open (0 when it cannot be opened: OpenGrid has read it, and a later read
-// reports its own error).
-func maskProblem(path string) (string, int) {
+// nodata. From the same open it also returns pass.BandProblem of the
+// first band (complex values, a scale of 0, ...) and the raster's number
+// of bands (0 when it cannot be opened: OpenGrid has read it, and a later
+// read reports its own error).
+func maskProblem(path string) (mask, band string, nBands int) {
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
-		return "", 0
+		return "", "", 0
 	}
 	defer ds.Close()
 	bands := ds.Bands()
-	return maskOf(bands), len(bands)
+	if len(bands) > 0 {
+		band = pass.BandProblem(bands[0])
+	}
+	return maskOf(bands), band, len(bands)
 }
 
 // maskOf is maskProblem's reading of a raster's bands.
@@ -197,6 +209,12 @@ func crsAdvice(crs string) string {
 // with commas in one --model, --null or --extra flag.
 var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
 
+// gdalSubdataset matches GDAL's name of one raster in a container file,
+// DRIVER:file:variable, such as NETCDF:"clim.nc":bio1 or
+// HDF5:"x.h5"://grid (a driver name of two letters or more, so that a
+// Windows drive letter is not one).
+var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -208,10 +226,20 @@ func mustExist(what, path string) error {
 			return fault.BadInput(fmt.Errorf("%s: %s does not exist: several NAME=PATH items were given in one flag; "+
 				"give each its own flag (--model a=x.tif --model b=y.tif) or, in a study file, a list", what, path))
 		}
+		if gdalSubdataset.MatchString(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
+				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
+		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+	}
+	if !st.IsDir() && !st.Mode().IsRegular() && what != "occurrences" {
+		// GDAL would wait forever for a named pipe's writer, and reads a
+		// raster or layer by seeking in it: the occurrence table alone is
+		// read as a stream (a shell's <(...) included).
+		return fault.BadInput(fmt.Errorf("%s: %s is not a regular file (a named pipe, device or socket); GDAL reads rasters and layers from files: give the path of the file", what, path))
 	}
 	if st.Mode().IsRegular() {
 		f, err := os.Open(path)
@@ -314,9 +342,10 @@ func (s *Study) readPoints() error {
 	// Points on no-data of the reference (first) model, from point reads.
 	// A run learns the valid cells in its first scoring pass; 'extents',
 	// which scores nothing, reads them once here.
-	r, err := pass.Open(s.models[0].Path)
+	first := s.models[0]
+	r, err := pass.Open(first.Path)
 	if err != nil {
-		return fault.BadInput(err)
+		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	if !o.ExtentsOnly {
 		// The blocks the points lie in are decoded here: kept (within
@@ -327,7 +356,7 @@ func (s *Study) readPoints() error {
 	pointVals, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
 		r.Close()
-		return fault.BadInput(err)
+		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	s.first = r
 	if o.ExtentsOnly {
@@ -335,7 +364,7 @@ func (s *Study) readPoints() error {
 		s.valid, err = r.ReadValid(g, bar.update)
 		bar.finish()
 		if err != nil {
-			return fault.BadInput(err)
+			return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 		}
 	}
 	// Which records are scored: none outside the raster or on no data,
@@ -518,6 +547,22 @@ func (s *Study) checksums() error {
 	for i, in := range ins {
 		if errs[i] != nil {
 			return fault.BadInput(fmt.Errorf("%s: %w", in.role, errs[i]))
+		}
+	}
+	// Two models or nulls with the same bytes (one file given twice, or a
+	// copy) score alike: most likely a path typed wrong.
+	for j := range s.models {
+		for i := range j {
+			if recs[i].SHA256 == recs[j].SHA256 {
+				s.warn(fmt.Sprintf("%s (%s) holds the same bytes as %s (%s), so the two score alike; check that each names the file you meant",
+					strings.Replace(ins[j].role, ":", " ", 1), ins[j].path, strings.Replace(ins[i].role, ":", " ", 1), ins[i].path))
+				break
+			}
+		}
+	}
+	for _, f := range files {
+		for _, sc := range f[min(1, len(f)):] {
+			s.sidecars = append(s.sidecars, sc.Path)
 		}
 	}
 	s.res.Inputs = append(s.res.Inputs, recs...)

@@ -1,0 +1,202 @@
+package main
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+)
+
+// TestSuspectInputsWarnedH26: inputs that run but most likely do not say
+// what the user meant are warned about, on the terminal and in
+// results.json, each with what to do:
+//   - a latitude-longitude raster on ED50, whose coordinates are read as
+//     WGS84's (about 120 m off in Italy, the ED50 to WGS84 shift);
+//   - a model without a nodata value whose cells without data hold -9999
+//     (scored as data: the whole raster's lowest value), or one whose
+//     cells without data hold the lowest float32 under another declared
+//     nodata value;
+//   - one file given as two models (they score alike);
+//   - occurrences whose test points all lie outside the base region (the
+//     base extent, the study's own, goes unscored).
+//
+// The plain study warns about none of these.
+func TestSuspectInputsWarnedH26(t *testing.T) {
+	s := newSmallStudy(t)
+	noNoData := filepath.Join(s.dir, "nonodata.tif")
+	{
+		ds, err := godal.Create(godal.GTiff, noNoData, 1, godal.Float32, s.w, s.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(s.gt)
+		ds.SetProjection(wgs84WKT)
+		buf := make([]float32, len(s.vals))
+		for i, v := range s.vals {
+			buf[i] = float32(v)
+			if math.IsNaN(v) {
+				buf[i] = -9999
+			}
+		}
+		if err := ds.Bands()[0].Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	// Test points in the raster's north-east, outside the region
+	// (12.5..18.5 E, 41.5..46.5 N).
+	outsideOcc := filepath.Join(s.dir, "outside.csv")
+	os.WriteFile(outsideOcc, []byte("lon,lat,role\n13.1,42.6,train\n14.1,43.6,train\n20.5,47.5,test\n21.2,47.1,test\n"), 0o644)
+
+	run := func(t *testing.T, args ...string) (stderr string, warnings []string) {
+		t.Helper()
+		out := filepath.Join(t.TempDir(), "out")
+		base := []string{"run", "--region", s.region, "--iterations", "5", "--region-buffers", "60", "--point-buffers", "40", "--hull-buffers", "0", "--out", out}
+		_, se, code := runBin(t, append(base, args...)...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, se)
+		}
+		return se, loadResults(t, out).Warnings
+	}
+	says := func(t *testing.T, stderr string, warnings []string, words ...string) {
+		t.Helper()
+		for _, list := range [][]string{{stderr}, warnings} {
+			found := false
+			for _, w := range list {
+				found = found || strings.Contains(w, words[0])
+			}
+			if !found {
+				t.Errorf("no warning %q in %q", words[0], list)
+				return
+			}
+		}
+		for _, w := range warnings {
+			if strings.Contains(w, words[0]) {
+				for _, x := range words[1:] {
+					if !strings.Contains(w, x) {
+						t.Errorf("warning %q does not say %q", w, x)
+					}
+				}
+			}
+		}
+	}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84"}
+
+	t.Run("plain study", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
+		for _, w := range suspect {
+			if strings.Contains(se, w) || strings.Contains(strings.Join(ws, "\n"), w) {
+				t.Errorf("the plain study is warned %q:\n%s", w, se)
+			}
+		}
+	})
+	t.Run("latitude and longitude on ED50", func(t *testing.T) {
+		ed50 := writeRasterCRS(t, s, "ed50.tif", 4230)
+		se, ws := run(t, "--model", "m="+ed50, "--occurrences", s.occ)
+		says(t, se, ws, suspect[3], "model m", "ed50.tif", "EPSG:4230", " m (", "gdalwarp -t_srs EPSG:4326")
+	})
+	t.Run("-9999 without a nodata value", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+noNoData, "--occurrences", s.occ)
+		says(t, se, ws, suspect[0], "model m", "nonodata.tif", "-9999", "scored as data", "gdal_translate -a_nodata -9999 "+noNoData)
+	})
+	t.Run("lowest float32 under another nodata value", func(t *testing.T) {
+		f := &badFixture{smallStudy: s}
+		// rasterWith declares smallNoData (-1); the cells without data
+		// hold the lowest float32 instead.
+		other := f.rasterWith(t, "othernodata.tif", s.gt, wgs84WKT, func(i int) float64 {
+			if math.IsNaN(s.vals[i]) {
+				return -math.MaxFloat32
+			}
+			return s.vals[i]
+		})
+		se, ws := run(t, "--model", "m="+other, "--occurrences", s.occ)
+		says(t, se, ws, "declares the nodata value -1, and its lowest value, -3.4028234663852886e+38", "model m", "scored as data")
+	})
+	t.Run("one file as two models", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)
+		says(t, se, ws, suspect[1], "model again", "as model m")
+	})
+	t.Run("no test point in the base region", func(t *testing.T) {
+		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)
+		says(t, se, ws, suspect[2], s.region, "not scored")
+	})
+}
+
+// writeRasterCRS writes the small study's values as a Float32 GeoTIFF
+// with nodata, on the study's grid in the CRS EPSG:code.
+func writeRasterCRS(t *testing.T, s *smallStudy, name string, code int) string {
+	t.Helper()
+	p := filepath.Join(s.dir, name)
+	ds, err := godal.Create(godal.GTiff, p, 1, godal.Float32, s.w, s.h)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr, err := godal.NewSpatialRefFromEPSG(code)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.SetGeoTransform(s.gt)
+	ds.SetSpatialRef(sr)
+	b := ds.Bands()[0]
+	b.SetNoData(smallNoData)
+	buf := make([]float32, len(s.vals))
+	for i, v := range s.vals {
+		buf[i] = float32(v)
+		if math.IsNaN(v) {
+			buf[i] = smallNoData
+		}
+	}
+	if err := b.Write(0, 0, buf, s.w, s.h); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestFeatureWarningsSummedUpH26: a layer with many features without
+// geometry or with invalid geometry is warned about in one line per kind,
+// listing ten features and how many more, not in one line per feature
+// (thousands of lines on the terminal and in results.json).
+func TestFeatureWarningsSummedUpH26(t *testing.T) {
+	s := newSmallStudy(t)
+	var feats []string
+	for i := 0; i < 30; i++ {
+		feats = append(feats, `{"type":"Feature","properties":{},"geometry":null}`)
+	}
+	for i := 0; i < 25; i++ { // bow-ties: each repaired
+		x := 12.5 + 0.01*float64(i)
+		feats = append(feats, `{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[`+
+			strconvF(x)+`,41.5],[18.5,46.5],[18.5,41.5],[`+strconvF(x)+`,46.5],[`+strconvF(x)+`,41.5]]]}}`)
+	}
+	region := filepath.Join(s.dir, "many.geojson")
+	os.WriteFile(region, []byte(`{"type":"FeatureCollection","features":[`+strings.Join(feats, ",")+`]}`), 0o644)
+	out := filepath.Join(t.TempDir(), "out")
+	_, se, code := runBin(t, "run", "--model", "m="+s.model, "--occurrences", s.occ, "--region", region, "--iterations", "5", "--out", out)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	for _, want := range []string{
+		"many.geojson features 1, 2, 3, 4, 5, 6, 7, 8, 9, 10 and 20 more have no geometry; skipped",
+		"many.geojson features 31, 32, 33, 34, 35, 36, 37, 38, 39, 40 and 15 more had invalid geometry",
+	} {
+		if n := strings.Count(se, want); n != 1 {
+			t.Errorf("stderr says %q %d times, want once:\n%s", want, n, se)
+		}
+	}
+	if n := strings.Count(se, "many.geojson feature"); n != 2 {
+		t.Errorf("%d lines about many.geojson's features, want 2", n)
+	}
+	if n := len(loadResults(t, out).Warnings); n > 5 {
+		t.Errorf("results.json holds %d warnings", n)
+	}
+}
+
+func strconvF(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
