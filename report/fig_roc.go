@@ -92,7 +92,9 @@ func logPosition(a, lo, hi float64) float64 {
 	if !(hi > lo) || lo <= 0 {
 		return 0
 	}
-	return math.Log(a/lo) / math.Log(hi/lo)
+	// Differences of logarithms: a quotient hi/lo overflows for areas
+	// far apart (1e-300 and 5e8 km² in a hand-edited results.json).
+	return (math.Log(a) - math.Log(lo)) / (math.Log(hi) - math.Log(lo))
 }
 
 // rocFigure draws the ROC curves on the area axis, one panel per model,

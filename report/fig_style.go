@@ -135,8 +135,14 @@ func suitabilityRamp(t float64) color.RGBA {
 // that no grey of the suitability ramp matches.
 var noDataColor = color.RGBA{220, 234, 242, 255}
 
+// rampColor interpolates stops at t, clamped to [0, 1]; a NaN t (the log
+// position of areas too far apart for a double's range) is the first
+// stop, not an index out of range.
 func rampColor(stops [][3]float64, t float64) color.RGBA {
-	t = math.Max(0, math.Min(1, t))
+	if !(t > 0) {
+		t = 0
+	}
+	t = math.Min(1, t)
 	seg := t * float64(len(stops)-1)
 	i := int(math.Floor(seg))
 	if i >= len(stops)-1 {

@@ -32,11 +32,17 @@ func niceStep(min, max float64) (step float64, decimals int) {
 	return niceStepN(min, max, maxTicks)
 }
 
-// niceStepN is niceStep with at most n ticks (n >= 2).
+// niceStepN is niceStep with at most n ticks (n >= 2). It ends for any
+// finite min <= max: the first exponent is clamped to the doubles' decimal
+// range (a span that overflows, or is 0, gave an exponent of the int's
+// minimum and a loop without end), and past 10^308 it gives that step.
 func niceStepN(min, max float64, n int) (step float64, decimals int) {
-	span := max - min
-	e := int(math.Floor(math.Log10(span / float64(n))))
-	for ; ; e++ {
+	lg := math.Log10(max/2-min/2) + math.Log10(2/float64(n)) // the span without overflow
+	e := -324
+	if lg > -324 { // false for NaN and -Inf
+		e = int(math.Floor(math.Min(lg, 308)))
+	}
+	for ; e <= 308; e++ {
 		for _, m := range []float64{1, 2, 2.5, 5} {
 			step = m * math.Pow10(e)
 			k := math.Floor(max/step+1e-9) - math.Ceil(min/step-1e-9) + 1
@@ -49,6 +55,7 @@ func niceStepN(min, max float64, n int) (step float64, decimals int) {
 			}
 		}
 	}
+	return 1e308, 0
 }
 
 func maxInt(a, b int) int {

@@ -21,13 +21,14 @@ const MaxPreviewSide = 4096
 //   - at least one model and one extent;
 //   - the grid size (positive), point counts (>= 0), models (unique names,
 //     finite ranges, floor share in [0,1]) and extents (unique ids, a known
-//     status, counts and areas >= 0, share in [0,1], duplicate_of naming
+//     status, counts >= 0, areas in [0, MaxAreaKm2], share in [0,1], duplicate_of naming
 //     an earlier extent);
 //   - scores, rings, curves and paired records refer to known models and
 //     extents, and there is exactly one score per model and extent;
 //   - a scored score holds one test point id and placement per test point;
 //   - AUCs, omission rates, area fractions and p-values lie in [0,1], the
-//     Boyce index in [-1,1], partial ROC ratios and SDs are >= 0 and E in
+//     Boyce index in [-1,1], partial ROC ratios and their intervals in
+//     [0,2] and their SDs in [0,2], AUC resample SDs in [0,1], E in
 //     (0,1), successes lie in [0, n];
 //   - points have a known role and status and finite coordinates;
 //   - the preview's size and encoded lengths match.
@@ -86,7 +87,7 @@ func validate(file string, r *Results) error {
 			v.fail(at+".status", "%q is not %s, %s or %s", e.Status, vocab.StatusOK, vocab.StatusEmpty, vocab.StatusDuplicate)
 		}
 		v.nonNegInt(at+".cells", e.Cells)
-		v.nonNeg(at+".area_km2", e.AreaKm2)
+		v.area(at+".area_km2", e.AreaKm2)
 		v.unit(at+".share_of_raster", e.ShareOfRaster)
 		v.nonNegInt(at+".train_points", int64(e.TrainPoints))
 		v.nonNegInt(at+".test_points", int64(e.TestPoints))
@@ -129,8 +130,8 @@ func validate(file string, r *Results) error {
 		v.unit(at+".auc_inner", g.AUCInner)
 		v.unit(at+".auc_ring", g.AUCRing)
 		v.unit(at+".auc_outer", g.AUCOuter)
-		v.nonNeg(at+".inner_area_km2", g.InnerAreaKm2)
-		v.nonNeg(at+".ring_area_km2", g.RingAreaKm2)
+		v.area(at+".inner_area_km2", g.InnerAreaKm2)
+		v.area(at+".ring_area_km2", g.RingAreaKm2)
 		v.nonNegInt(at+".ring_cells", g.RingCells)
 		v.finite(at+".share_of_change", g.ShareOfChange)
 	}
@@ -193,6 +194,29 @@ func (v *validator) finite(at string, x float64) {
 	}
 }
 
+// maxPartialRatio bounds a partial ROC ratio (metrics.PartialROC): the
+// model area is at most 1 - x_E (y <= 1) and the null area is (1 - x_E^2)/2,
+// so the ratio is at most 2/(1 + x_E) <= 2. A standard deviation of values
+// in [0, 2] is at most 2 (a loose bound: half the range times
+// sqrt(n/(n-1)) <= sqrt(2) for the sample SD of n >= 2 values), and an
+// AUC's (values in [0, 1]) at most 1.
+const maxPartialRatio = 2
+
+// MaxAreaKm2 bounds every area a results file may hold: the surface of
+// the WGS84 ellipsoid, 510,065,621.7 km² (S = 2 pi a^2 + pi (b^2/e)
+// ln((1+e)/(1-e)), the oblate spheroid's area; TestMaxAreaIsTheEllipsoid
+// recomputes it from a and f), rounded up. A larger area is no extent on
+// the Earth, and would take the figures' area axes and colour bars out of
+// any range they can draw.
+const MaxAreaKm2 = 510_065_622.0
+
+// area checks an area in km²: in [0, MaxAreaKm2].
+func (v *validator) area(at string, x float64) {
+	if !(x >= 0 && x <= MaxAreaKm2) {
+		v.fail(at, "%v km² is outside [0, %.0f], the area of the Earth", x, MaxAreaKm2)
+	}
+}
+
 func (v *validator) between(at string, x, lo, hi float64) {
 	if !(x >= lo && x <= hi) {
 		v.fail(at, "%v is outside [%g, %g]", x, lo, hi)
@@ -234,7 +258,7 @@ func (v *validator) settings(s Settings) {
 
 func (v *validator) score(at string, s Score) {
 	v.nonNegInt(at+".cells", s.Cells)
-	v.nonNeg(at+".area_km2", s.AreaKm2)
+	v.area(at+".area_km2", s.AreaKm2)
 	for _, c := range []struct {
 		name string
 		n    int
@@ -251,17 +275,17 @@ func (v *validator) score(at string, s Score) {
 	v.unit(at+".auc", s.AUC)
 	v.unit(at+".auc_unweighted", s.AUCUnweighted)
 	v.unit(at+".auc_train", s.AUCTrain)
-	v.nonNeg(at+".auc_boot_sd", s.AUCBootSD)
+	v.between(at+".auc_boot_sd", s.AUCBootSD, 0, 1)
 	for k, p := range s.PartialROC {
 		pa := fmt.Sprintf("%s.partial_roc[%d]", at, k)
 		if !(p.E > 0 && p.E < 1) {
 			v.fail(pa+".e", "%v is outside (0, 1)", p.E)
 		}
-		v.nonNeg(pa+".ratio", p.Ratio)
-		v.nonNeg(pa+".ratio_mean", p.RatioMean)
-		v.nonNeg(pa+".ratio_sd", p.RatioSD)
-		v.nonNeg(pa+".ci_low", p.CILow)
-		v.nonNeg(pa+".ci_high", p.CIHigh)
+		v.between(pa+".ratio", p.Ratio, 0, maxPartialRatio)
+		v.between(pa+".ratio_mean", p.RatioMean, 0, maxPartialRatio)
+		v.between(pa+".ratio_sd", p.RatioSD, 0, maxPartialRatio)
+		v.between(pa+".ci_low", p.CILow, 0, maxPartialRatio)
+		v.between(pa+".ci_high", p.CIHigh, 0, maxPartialRatio)
 		v.unit(pa+".p_value", p.PValue)
 		if p.Iterations < 0 || p.NotFormed < 0 || p.NotFormed > p.Iterations {
 			v.fail(pa, "iterations %d and iterations_not_formed %d do not fit", p.Iterations, p.NotFormed)

@@ -2,6 +2,8 @@ package report
 
 import (
 	"encoding/json"
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime/debug"
@@ -63,6 +65,11 @@ func TestValidateRefuses(t *testing.T) {
 				}
 			}
 		}, "boyce.index: 3"},
+		{"area above the Earth's", func(r *Results) { r.Extents[1].AreaKm2 = 1e308 }, "area_km2: 1e+308 km² is outside [0, 510065622]"},
+		{"score area above the Earth's", func(r *Results) { firstScored(r).AreaKm2 = 6e8 }, "area_km2: 6e+08 km²"},
+		{"partial ROC ratio above 2", func(r *Results) { firstScored(r).PartialROC[0].Ratio = 1.7e308 }, "partial_roc[0].ratio: 1.7e+308 is outside [0, 2]"},
+		{"partial ROC interval above 2", func(r *Results) { firstScored(r).PartialROC[0].CIHigh = 2.5 }, "ci_high: 2.5 is outside [0, 2]"},
+		{"AUC resample SD above 1", func(r *Results) { firstScored(r).AUCBootSD = 3 }, "auc_boot_sd: 3 is outside [0, 1]"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -139,4 +146,67 @@ func FuzzResults(f *testing.F) {
 		_ = figures(&r)
 		_ = methodsText(&r)
 	})
+}
+
+// TestMaxAreaIsTheEllipsoid: MaxAreaKm2 is the surface of the WGS84
+// ellipsoid rounded up, S = 2 pi a^2 + pi (b^2/e) ln((1+e)/(1-e)) (the
+// oblate spheroid's area, any geodesy handbook), with a = 6378137 m and
+// 1/f = 298.257223563 (the WGS84 definition).
+func TestMaxAreaIsTheEllipsoid(t *testing.T) {
+	a, f := 6378137.0, 1/298.257223563
+	b := a * (1 - f)
+	e := math.Sqrt(1 - b*b/(a*a))
+	s := (2*math.Pi*a*a + math.Pi*b*b/e*math.Log((1+e)/(1-e))) / 1e6
+	if !(MaxAreaKm2 >= s && MaxAreaKm2-s < 1) {
+		t.Fatalf("MaxAreaKm2 = %.1f, the ellipsoid's area is %.3f km²", MaxAreaKm2, s)
+	}
+}
+
+// TestExtremeValuesRender: values a results file may hold, however far
+// from a real run's (an area of 1e-300 km² or the whole Earth, a Boyce P/E
+// ratio of 1.7e308), pass Validate and draw every figure without an
+// error, a panic or a hang. A P/E ratio of 1.7e308 once made the tick
+// code loop for ever, and an area of 1e308 (now refused) indexed the
+// colour bar out of range.
+func TestExtremeValuesRender(t *testing.T) {
+	r := loadSample(t)
+	r.Extents[1].AreaKm2 = 1e-300
+	r.Extents[2].AreaKm2 = MaxAreaKm2
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		switch sc.Extent {
+		case r.Extents[1].ID:
+			sc.AreaKm2 = 1e-300
+		case r.Extents[2].ID:
+			sc.AreaKm2 = MaxAreaKm2
+		}
+		if b := sc.Boyce; b != nil && len(b.Ratio) > 0 {
+			b.Ratio[0] = 1.7e308
+		}
+	}
+	if err := Validate(r); err != nil {
+		t.Fatal(err)
+	}
+	r.Sensitivity = nil
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan error, 1)
+	go func() {
+		for _, f := range figures(r) {
+			if _, err := render(f, "svg"); err != nil {
+				done <- fmt.Errorf("figure %s: %w", f.Name, err)
+				return
+			}
+		}
+		done <- nil
+	}()
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatal(err)
+		}
+	case <-time.After(2 * time.Minute):
+		t.Fatal("the figures took over 2 minutes: a loop without end")
+	}
 }
