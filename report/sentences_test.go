@@ -1714,3 +1714,25 @@ func TestMetricsCaptionBarsNotPaired(t *testing.T) {
 	r.Settings.PairedResamples, r.Settings.Iterations = 0, 1
 	checkWords(t, "caption without bars", metricsCaption(r), nil, []string{"overlapping bars"})
 }
+
+// TestOneExtentBesideUnscoredBase: when the base extent is scored for no
+// model and one other extent stands in as the reference, a verdict with
+// nothing to compare names that reference extent, not "the base extent".
+func TestOneExtentBesideUnscoredBase(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base", "region_b50")
+	for i := range r.Scores {
+		if r.Scores[i].Extent == "base" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	if s.BaseExtent != "region_b50" {
+		t.Fatalf("reference extent %q, want region_b50 standing in for the unscored base", s.BaseExtent)
+	}
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil {
+		t.Fatal("no AUC verdict of good")
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"scored on the reference extent region_b50 only, so there is nothing to compare"}, []string{"the base extent"})
+}

@@ -128,7 +128,13 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	tol := "±" + fmtG(m.Tolerance)
 	switch {
 	case len(mv.Diffs) == 0:
-		mv.Sentence = fmt.Sprintf("%s: scored on the base extent only, so there is nothing to compare.", name)
+		// a.base is the base extent, or the extent standing in for it
+		// when the base could not be scored: name it, not "the base".
+		where := "the base extent " + a.base
+		if a.base != vocab.BaseID {
+			where = "the reference extent " + a.base
+		}
+		mv.Sentence = fmt.Sprintf("%s: scored on %s only, so there is nothing to compare.", name, where)
 		return mv
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
