@@ -175,7 +175,7 @@ func (an *AboveNull) gap(id string) *NullGap {
 // the smallest to the largest extent (a description).
 func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	var b strings.Builder
-	null := modelLabel(r, an.Null)
+	null := ModelLabel(r, an.Null)
 	g := an.gap(an.BaseExtent)
 	score := metricPhrase(m)
 	switch {
@@ -353,7 +353,7 @@ func aboveNullRows(r *Results) [][]cell {
 	}
 	for _, an := range r.Sensitivity.AboveNull {
 		for _, g := range an.Gaps {
-			row := []cell{tc(an.Metric), tc(an.Model), tc(modelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
+			row := []cell{tc(an.Metric), tc(an.Model), tc(ModelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
 			if g.Defined {
 				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
 			} else {

@@ -316,7 +316,7 @@ func metricsFigure(r *Results) figure {
 	}
 	for j, nm := range nulls(r) {
 		ls, gs := nullLineStyle(j)
-		items = append(items, legendItem{modelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
+		items = append(items, legendItem{ModelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
 	}
 	legend := legendRows(items, f.W)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)

@@ -116,7 +116,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		eb.CapWidth = vg.Points(3) * scale
 		p.Add(sc, eb)
 		gs := markerStyle(i)
-		items = append(items, legendItem{an.Model + " − " + modelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
+		items = append(items, legendItem{an.Model + " − " + ModelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
 	}
 	if drawn == 0 {

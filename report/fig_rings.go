@@ -630,7 +630,7 @@ func ringsFigures(r *Results) []figure {
 	for _, nm := range usedNulls {
 		ls, gs := nullLineStyle(nullIndex[nm])
 		ls.Width, ls.Dashes = vg.Points(2.2), nil
-		items = append(items, legendItem{modelLabel(r, nm), glyphThumb{gs: gs, line: &ls}})
+		items = append(items, legendItem{ModelLabel(r, nm), glyphThumb{gs: gs, line: &ls}})
 	}
 	items = append(items,
 		legendItem{"ring of new background", lineThumb{lineStyle(ink, 2.2, nil)}},

@@ -391,7 +391,7 @@ func scoresSection(r *Results) scoresView {
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell
 	for _, sc := range r.Scores {
-		row := []cell{tc(modelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
+		row := []cell{tc(ModelLabel(r, sc.Model)), tc(sc.Extent), areaCell(sc.AreaKm2)}
 		if !sc.Scored {
 			row = append(row, dash, dash, tc("no: "+sc.NotScored))
 			for len(row) < len(head) {
@@ -530,7 +530,7 @@ func settingsSection(r *Results) settingsView {
 	}
 	var ms [][]cell
 	for _, m := range r.Models {
-		ms = append(ms, []cell{tc(modelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
+		ms = append(ms, []cell{tc(ModelLabel(r, m.Name)), tc(m.Path), nc(m.ValueMin, 4), nc(m.ValueMax, 4), nc(m.FloorShare, 3)})
 	}
 	return settingsView{
 		Settings: table("tbl-settings", []string{"setting", "value"}, rows),

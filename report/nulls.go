@@ -14,9 +14,9 @@ import (
 	"areasweep/extent/vocab"
 )
 
-// modelLabel is how the report names a model: nulls carry what they are,
+// ModelLabel is how the report (and the run's log) names a model: nulls carry what they are,
 // so that no reader takes one for a model under evaluation.
-func modelLabel(r *Results, name string) string {
+func ModelLabel(r *Results, name string) string {
 	for _, m := range r.Models {
 		if m.Name != name || !m.IsNull() {
 			continue

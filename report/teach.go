@@ -67,7 +67,7 @@ func teachData(r *Results) ([]byte, error) {
 		pl.Models = append(pl.Models, n.Name)
 	}
 	for _, m := range pl.Models {
-		pl.Labels = append(pl.Labels, modelLabel(r, m))
+		pl.Labels = append(pl.Labels, ModelLabel(r, m))
 	}
 	if len(r.Settings.E) > 0 {
 		pl.E = r.Settings.E[0]

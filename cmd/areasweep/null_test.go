@@ -5,8 +5,10 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/airbusgeo/godal"
@@ -114,6 +116,16 @@ func TestDistanceNullEqualsItsGeoTIFF(t *testing.T) {
 	}
 	if dn.ValueMin != cp.ValueMin || dn.ValueMax != cp.ValueMax || dn.FloorShare != cp.FloorShare {
 		t.Errorf("value range: virtual %+v, GeoTIFF %+v", dn, cp)
+	}
+	// The run's log names each null as one, as the report does.
+	logText, err := os.ReadFile(filepath.Join(out, "run.log"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{report.DistanceNullName + " (distance-only null) on base: AUC", "copy (null) on base: AUC", "\nm on base: AUC"} {
+		if !strings.Contains(string(logText), want) {
+			t.Errorf("run.log lacks %q", want)
+		}
 	}
 	if res.Sensitivity == nil || slices.Contains(res.Sensitivity.ModelNames, "copy") || slices.Contains(res.Sensitivity.ModelNames, report.DistanceNullName) {
 		t.Errorf("nulls in the sensitivity analysis: %v", res.Sensitivity)

@@ -234,7 +234,7 @@ func (s *Study) recordExtent(model string, r extentScore) {
 	}
 	s.res.Scores = append(s.res.Scores, sc)
 	if r.ev != nil {
-		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", model, sc.Extent, sc.AUC, s.o.E[0], firstRatio(sc))
+		s.logf("%s on %s: AUC %.4f  partial ROC(E=%g) %s", report.ModelLabel(s.res, model), sc.Extent, sc.AUC, s.o.E[0], firstRatio(sc))
 	}
 }
 
