@@ -195,17 +195,7 @@ func TestBadInputs(t *testing.T) {
 			cmd.Stderr = &se
 			code := exitCode(cmd.Run())
 			stderr := se.String()
-			if code != c.code {
-				t.Errorf("exit %d, want %d; stderr: %s", code, c.code, stderr)
-			}
-			for _, w := range c.words {
-				if !strings.Contains(stderr, w) {
-					t.Errorf("stderr does not say %q: %s", w, stderr)
-				}
-			}
-			if m := forbidden.FindString(stderr); m != "" {
-				t.Errorf("stderr holds %q: %s", m, stderr)
-			}
+			checkRefusal(t, code, c.code, stderr, c.words)
 			if len(stderr) > 3000 {
 				t.Errorf("stderr is %d bytes long; a refusal should be a few lines", len(stderr))
 			}
@@ -621,5 +611,23 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"report on an empty object", []string{"report", rdEmptyObject}, 2, []string{"results.json", "not a results file written by areasweep", "no schema_version"}, "", rdEmptyObject},
 		{"report on a JSON array", []string{"report", rdArray}, 2, []string{"results.json", "holds a JSON array, not an object"}, "", rdArray},
 		{"demo workers huge", []string{"demo", "--workers", "100000"}, 2, []string{"--workers is 100000"}, "", ""},
+	}
+}
+
+// checkRefusal checks a command's exit code against want, that its stderr
+// says each of words, and that it holds nothing of forbidden (a Go panic,
+// a raw library message).
+func checkRefusal(t *testing.T, code, want int, stderr string, words []string) {
+	t.Helper()
+	if code != want {
+		t.Errorf("exit %d, want %d; stderr: %s", code, want, stderr)
+	}
+	for _, w := range words {
+		if !strings.Contains(stderr, w) {
+			t.Errorf("stderr does not say %q: %s", w, stderr)
+		}
+	}
+	if m := forbidden.FindString(stderr); m != "" {
+		t.Errorf("stderr holds %q: %s", m, stderr)
 	}
 }
