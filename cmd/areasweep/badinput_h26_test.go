@@ -361,17 +361,7 @@ func TestInputsReadAsDeclaredH26(t *testing.T) {
 	outs := t.TempDir()
 	run := func(t *testing.T, name string, args ...string) []byte {
 		t.Helper()
-		out := filepath.Join(outs, name)
-		base := []string{"run", "--iterations", "20", "--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--out", out, "--occurrences", s.occ}
-		_, se, code := runBin(t, append(base, args...)...)
-		if code != 0 {
-			t.Fatalf("exit %d: %s", code, se)
-		}
-		b, err := os.ReadFile(filepath.Join(out, "scores.csv"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		return b
+		return smallRunScores(t, filepath.Join(outs, name), append([]string{"--occurrences", s.occ}, args...)...)
 	}
 	want := run(t, "plain", "--model", "m="+s.model, "--region", s.region)
 	if !strings.Contains(string(want), "m,whole_raster,") {

@@ -21,19 +21,7 @@ import (
 // report given the results.json file rather than its folder.
 func TestUnusualValidInputs(t *testing.T) {
 	s := newSmallStudy(t)
-	run := func(t *testing.T, out string, args ...string) []byte {
-		t.Helper()
-		base := []string{"run", "--iterations", "20", "--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--out", out}
-		_, se, code := runBin(t, append(base, args...)...)
-		if code != 0 {
-			t.Fatalf("exit %d: %s", code, se)
-		}
-		b, err := os.ReadFile(filepath.Join(out, "scores.csv"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		return b
-	}
+	run := smallRunScores
 	outs := t.TempDir()
 	want := run(t, filepath.Join(outs, "plain"), "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ, "--region", s.region)
 
@@ -129,4 +117,21 @@ func TestUnusualValidInputs(t *testing.T) {
 			t.Fatalf("exit %d: %s", code, se)
 		}
 	})
+}
+
+// smallRunScores runs a small family (20 iterations, two region buffers,
+// one point buffer, the hull) into out with args added, fails the test on
+// any exit but 0, and returns the run's scores.csv.
+func smallRunScores(t *testing.T, out string, args ...string) []byte {
+	t.Helper()
+	base := []string{"run", "--iterations", "20", "--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--quiet", "--out", out}
+	_, se, code := runBin(t, append(base, args...)...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, se)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "scores.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
 }
