@@ -602,42 +602,21 @@ func ringsFigures(r *Results) []figure {
 	for j, nm := range nulls(r) {
 		nullIndex[nm.Name] = j
 	}
-	usedModel := make([]bool, len(s.ModelNames))
-	var usedNulls []string
-	seenNull := map[string]bool{}
 	for _, w := range panels {
 		w.marks = make([]draw.GlyphStyle, len(w.cs))
 		for k, mi := range w.models {
 			if mi >= 0 {
 				w.marks[k] = markerStyle(mi)
-				usedModel[mi] = true
 				continue
 			}
 			_, w.marks[k] = nullLineStyle(nullIndex[w.cs[k].Model])
-			if !seenNull[w.cs[k].Model] {
-				seenNull[w.cs[k].Model] = true
-				usedNulls = append(usedNulls, w.cs[k].Model)
-			}
 		}
 	}
-	var items []legendItem
-	for i, m := range s.ModelNames {
-		if usedModel[i] {
-			ls := lineStyle(modelColor(i), 2.2, nil)
-			items = append(items, legendItem{"model " + m, glyphThumb{gs: markerStyle(i), line: &ls}})
-		}
-	}
-	for _, nm := range usedNulls {
-		ls, gs := nullLineStyle(nullIndex[nm])
-		ls.Width, ls.Dashes = vg.Points(2.2), nil
-		items = append(items, legendItem{ModelLabel(r, nm), glyphThumb{gs: gs, line: &ls}})
-	}
-	items = append(items,
-		legendItem{"ring of new background", lineThumb{lineStyle(ink, 2.2, nil)}},
-		legendItem{"test records that first fall inside", lineThumb{lineStyle(ink, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})}})
+	items := ringLegendItems(r, wholePanels(panels), nullIndex)
 	const w = twoColumns
-	legend := legendRows(items, w)
-	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+	// Every page keeps room for the key of all the pages' lines; a page's
+	// key lists the lines drawn on it.
+	legendH := vg.Length(len(legendRows(items, w)))*legendRowHeight + vg.Points(4)
 	note := wrapText(ringsNote, minFontPt, w-vg.Points(8))
 	noteH := textStyle(minFontPt).Height(note) + vg.Points(6)
 	lay := newRingLayout(panels, len(s.ModelNames), legendH, noteH)
@@ -669,7 +648,13 @@ func ringsFigures(r *Results) []figure {
 		} else {
 			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))
 		}
-		f.H = lay.height(pi)
+		legend := legendRows(ringLegendItems(r, pg.segs, nullIndex), w)
+		pageLegendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+		if pageLegendH > legendH {
+			legend, pageLegendH = legendRows(items, w), legendH
+		}
+		// A shorter key shortens the page by as much.
+		f.H = lay.height(pi) - (legendH - pageLegendH)
 		f.draw = func(dc draw.Canvas) error {
 			rest := dc
 			if pi == 0 {
@@ -679,7 +664,7 @@ func ringsFigures(r *Results) []figure {
 				sty.YAlign = draw.YTop
 				noteC.FillText(sty, vg.Point{X: noteC.Min.X + vg.Points(4), Y: noteC.Max.Y - vg.Points(2)}, note)
 			}
-			legC, rest := splitBottom(rest, legendH)
+			legC, rest := splitBottom(rest, pageLegendH)
 			drawLegendRows(legC, legend)
 			sty := textStyle(minFontPt)
 			sty.YAlign = draw.YCenter
@@ -705,4 +690,40 @@ func ringsFigures(r *Results) []figure {
 		fs = append(fs, f)
 	}
 	return fs
+}
+
+// ringLegendItems is the key of the waterfall pieces segs: the models
+// and then the nulls that have a line in them, in the order of
+// Sensitivity.ModelNames and of first appearance, and the two kinds of
+// step. nullIndex gives each null's index among the nulls (its style).
+func ringLegendItems(r *Results, segs []ringSeg, nullIndex map[string]int) []legendItem {
+	s := r.Sensitivity
+	usedModel := make([]bool, len(s.ModelNames))
+	var usedNulls []string
+	seenNull := map[string]bool{}
+	for _, sg := range segs {
+		for k, mi := range sg.w.models {
+			if mi >= 0 {
+				usedModel[mi] = true
+			} else if nm := sg.w.cs[k].Model; !seenNull[nm] {
+				seenNull[nm] = true
+				usedNulls = append(usedNulls, nm)
+			}
+		}
+	}
+	var items []legendItem
+	for i, m := range s.ModelNames {
+		if usedModel[i] {
+			ls := lineStyle(modelColor(i), 2.2, nil)
+			items = append(items, legendItem{"model " + m, glyphThumb{gs: markerStyle(i), line: &ls}})
+		}
+	}
+	for _, nm := range usedNulls {
+		ls, gs := nullLineStyle(nullIndex[nm])
+		ls.Width, ls.Dashes = vg.Points(2.2), nil
+		items = append(items, legendItem{ModelLabel(r, nm), glyphThumb{gs: gs, line: &ls}})
+	}
+	return append(items,
+		legendItem{"ring of new background", lineThumb{lineStyle(ink, 2.2, nil)}},
+		legendItem{"test records that first fall inside", lineThumb{lineStyle(ink, 1.4, []vg.Length{vg.Points(2.5), vg.Points(1.5)})}})
 }

@@ -217,7 +217,9 @@ func TestRemoveStalePages(t *testing.T) {
 // pages named ring_steps, ring_steps_2, ...; each at most maxHeight tall;
 // every text inside its page, none overlapping another (boxes from the
 // font's ascent and descent, as in TestFigurePrintSizes), tick labels at
-// their ticks; and every row of the chains named on exactly one page.
+// their ticks; every row of the chains named on exactly one page; and the
+// key of a page lists the models and the null only where that page
+// draws them.
 func TestRingFigureSVG(t *testing.T) {
 	const rows = 62
 	var chains []ChainSummary
@@ -239,6 +241,7 @@ func TestRingFigureSVG(t *testing.T) {
 		t.Fatalf("%d pages for %d rows of three models", len(fs), rows)
 	}
 	named := map[string]int{}
+	nullKeys, modelKeys := 0, 0
 	for pi, f := range fs {
 		if f.Name != ringPageName(pi) {
 			t.Errorf("page %d named %s", pi+1, f.Name)
@@ -255,6 +258,24 @@ func TestRingFigureSVG(t *testing.T) {
 			t.Error(p)
 		}
 		texts, _ := parseSVG(t, svg)
+		// The key lists a line only on the pages that draw it.
+		key := map[string]int{}
+		nullPanel, modelPanel := false, false
+		for _, tx := range texts {
+			key[tx.s]++
+			if strings.HasPrefix(tx.s, "nested chain ") {
+				if strings.Contains(tx.s, "null dnull") {
+					nullPanel = true
+				} else {
+					modelPanel = true
+				}
+			}
+		}
+		nullKeys, modelKeys = nullKeys+key["dnull (distance-only null)"], modelKeys+key["model m0"]
+		if nullPanel != (key["dnull (distance-only null)"] == 1) || modelPanel != (key["model m0"] == 1 && key["model m2"] == 1) {
+			t.Errorf("%s: null panel %v, model panels %v, key: null %d, m0 %d, m2 %d", f.Name, nullPanel, modelPanel,
+				key["dnull (distance-only null)"], key["model m0"], key["model m2"])
+		}
 		box := func(tx svgText) vg.Rectangle {
 			return vg.Rectangle{Min: vg.Point{X: vg.Length(tx.x), Y: vg.Length(tx.y - 0.22*tx.size)}, Max: vg.Point{X: vg.Length(tx.x + tx.width()), Y: vg.Length(tx.y + 0.76*tx.size)}}
 		}
@@ -270,6 +291,9 @@ func TestRingFigureSVG(t *testing.T) {
 				}
 			}
 		}
+	}
+	if nullKeys == 0 || modelKeys == 0 || nullKeys+modelKeys > len(fs) {
+		t.Errorf("%d pages: the null in %d keys, the models in %d (each page holds one kind here)", len(fs), nullKeys, modelKeys)
 	}
 	w := syntheticWaterfall("region", rows, 3, 0)
 	for i := range w.rows() {
