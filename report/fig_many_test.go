@@ -649,3 +649,40 @@ func TestMapPDFSameBytes(t *testing.T) {
 		}
 	}
 }
+
+// TestMapKeyInFreeCell: three map panels in two columns leave the
+// bottom-right cell free, and the shared key (point marks, suitability
+// bar, scale bar and north arrow) is drawn there, in the right half and above the lowest
+// text of the panels, not in a band under them; every text inside the
+// canvas and none overlapping another.
+func TestMapKeyInFreeCell(t *testing.T) {
+	r := manyExtents(t, 60)
+	if n := len(mapGroups(r)); n != 3 {
+		t.Fatalf("%d panels, want 3", n)
+	}
+	f, ok := mapFigure(r)
+	if !ok {
+		t.Fatal("no map figure")
+	}
+	svg, err := render(f, "svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkTexts(t, "maps of 60 extents", svg)
+	texts, _ := parseSVG(t, svg)
+	suit := "suitability, model " + r.Models[0].Name
+	lowest, keyLowest, keys := math.Inf(1), math.Inf(1), 0
+	for _, tx := range texts {
+		lowest = math.Min(lowest, tx.y)
+		if tx.s == suit || tx.s == "N" || strings.HasPrefix(tx.s, "training point") || strings.HasPrefix(tx.s, "test point") {
+			keys++
+			keyLowest = math.Min(keyLowest, tx.y)
+			if tx.x < float64(f.W)/2 {
+				t.Errorf("key text %q at x %.1f, left of the free cell", tx.s, tx.x)
+			}
+		}
+	}
+	if keys < 3 || !(keyLowest > lowest) {
+		t.Errorf("%d key texts, the lowest at y %.1f, the figure's lowest text at %.1f: key not in the free cell", keys, keyLowest, lowest)
+	}
+}

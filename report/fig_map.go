@@ -775,6 +775,10 @@ const (
 	mapMaxH    = 100 * vg.Millimeter
 	mapMinH    = 30 * vg.Millimeter
 	mapMaxCols = 4
+	// keyMinW is the narrowest free room at the end of the panels' last
+	// row that takes the shared key (the suitability bar and scale bar
+	// read well down to it).
+	keyMinW = 70 * vg.Millimeter
 	// mapPanelChrome is a panel's height besides its map and legend: title
 	// and axis labels.
 	mapPanelChrome = 42 // points
@@ -871,6 +875,21 @@ func mapFigure(r *Results) (figure, bool) {
 	left := len(groups) - lay.shown
 	groups = groups[:lay.shown]
 	rows := (len(groups) + cols - 1) / cols
+	// With a cell or more free at the end of the last row (three panels
+	// in two columns), the shared key goes there, stacked (point marks,
+	// suitability bar, scale bar), rather than in a band under the
+	// panels, when the free cells are at least keyMinW wide and it fits
+	// their height.
+	inCell := false
+	var cellRows [][]legendItem
+	if free := rows*cols - len(groups); free > 0 {
+		freeW := vg.Length(free) * cellW
+		cellRows = legendRows(shared, freeW-vg.Points(4))
+		need := vg.Length(len(cellRows))*legendRowHeight + vg.Points(10) + keyH
+		if freeW >= keyMinW && need <= cellH {
+			inCell, bottomH = true, 0
+		}
+	}
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
 	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
 		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
@@ -922,10 +941,21 @@ func mapFigure(r *Results) (figure, bool) {
 			}
 		}
 		// Shared key: point marks, suitability colour bar, scale and north.
-		keyC, barC := splitRight(bottom, f.W/2)
-		keyC.Max.Y -= vg.Points(6)
+		var keyC, barC draw.Canvas
+		rowsDrawn := sharedRows
+		if inCell {
+			c := rest
+			c.Min.X = rest.Min.X + vg.Length(len(groups)%cols)*cellW
+			c.Max.Y = rest.Max.Y - vg.Length(rows-1)*cellH - vg.Points(6)
+			keyC, barC = splitTop(c, vg.Length(len(cellRows))*legendRowHeight+vg.Points(4))
+			barC.Min.Y = barC.Max.Y - keyH
+			rowsDrawn = cellRows
+		} else {
+			keyC, barC = splitRight(bottom, f.W/2)
+			keyC.Max.Y -= vg.Points(6)
+		}
 		barC.Min.X += vg.Points(8)
-		drawLegendRows(keyC, sharedRows)
+		drawLegendRows(keyC, rowsDrawn)
 		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
 		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model, barPixels(pv.Width).suitability)
 		if kmPerPt > 0 {
