@@ -956,13 +956,36 @@ type Comparison struct {
 // the AUCs, and the B resamples of d restricted to the common presences
 // for the other scores (the same index sets for every pair, so any two
 // comparisons are paired as well). Both evaluators must come from the
-// same Settings and the same number of thresholds.
+// same Settings and the same number of thresholds: Omission[t] compares
+// threshold t of a with threshold t of b (CompareThresholds pairs them
+// otherwise).
 //
 // Percentile intervals of paired bootstrap differences: Efron &
 // Tibshirani (1993) An Introduction to the Bootstrap, ch. 13.
 func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
-	if len(a.es) != len(b.es) || len(a.cut) != len(b.cut) {
-		return Comparison{}, errors.New("metrics: Compare: evaluators made with different settings or thresholds")
+	if len(a.cut) != len(b.cut) {
+		return Comparison{}, errors.New("metrics: Compare: evaluators made with different numbers of thresholds")
+	}
+	om := make([][2]int, len(a.cut))
+	for t := range om {
+		om[t] = [2]int{t, t}
+	}
+	return CompareThresholds(a, b, d, om)
+}
+
+// CompareThresholds is Compare with the omission rates paired by om:
+// Omission[t] compares a's threshold om[t][0] with b's threshold om[t][1].
+// Two models have their own thresholds, and not always the same ones (a
+// model with no data on any training point has no training-presence
+// threshold): the caller pairs those both have.
+func CompareThresholds(a, b *Evaluator, d Draws, om [][2]int) (Comparison, error) {
+	if len(a.es) != len(b.es) {
+		return Comparison{}, errors.New("metrics: Compare: evaluators made with different settings")
+	}
+	for _, p := range om {
+		if p[0] < 0 || p[0] >= len(a.cut) || p[1] < 0 || p[1] >= len(b.cut) {
+			return Comparison{}, fmt.Errorf("metrics: Compare: threshold pair %v outside the evaluators' %d and %d thresholds", p, len(a.cut), len(b.cut))
+		}
 	}
 	for _, id := range a.ids {
 		if id < 0 || id >= d.N {
@@ -1019,7 +1042,7 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 	} else {
 		fb = b.eval(cb)
 	}
-	nE, nT := len(a.es), len(a.cut)
+	nE, nT := len(a.es), len(om)
 	cmp.PartialROC = make([]Resampled, nE)
 	cmp.Omission = make([]Resampled, nT)
 	diffs := make([][]float64, nE+nT+1)
@@ -1033,7 +1056,7 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
 	}
 	for t := 0; t < nT; t++ {
-		cmp.Omission[t] = Resampled{A: fa.Omission[t], B: fb.Omission[t], Defined: fa.N > 0, Resamples: d.B}
+		cmp.Omission[t] = Resampled{A: fa.Omission[om[t][0]], B: fb.Omission[om[t][1]], Defined: fa.N > 0, Resamples: d.B}
 	}
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 	if len(pa) > 0 {
@@ -1068,16 +1091,16 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 		var sa, sb evalScratch
 		for r := 0; r < d.B; r++ {
 			if ma != nil {
-				ma.load(r, nE, nT, &ra)
+				ma.load(r, nE, len(a.cut), &ra)
 			} else {
 				a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa)
 			}
 			if mb != nil {
-				mb.load(r, nE, nT, &rb)
+				mb.load(r, nE, len(b.cut), &rb)
 			} else {
 				b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
 			}
-			appendResampleDiffs(diffs, &ra, &rb)
+			appendResampleDiffs(diffs, &ra, &rb, om)
 		}
 	}
 	finishResampled(&cmp, diffs, d.B)
@@ -1086,10 +1109,10 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 
 // appendResampleDiffs appends one resample's paired differences a - b to
 // diffs: one list per E (partial ROC ratio, where both sides define it),
-// per threshold (omission, when a holds a presence) and the Boyce index
-// (where both define it), in that order.
-func appendResampleDiffs(diffs [][]float64, ra, rb *Values) {
-	nE, nT := len(ra.Ratio), len(ra.Omission)
+// per pair of thresholds om (omission, when a holds a presence) and the
+// Boyce index (where both define it), in that order.
+func appendResampleDiffs(diffs [][]float64, ra, rb *Values, om [][2]int) {
+	nE, nT := len(ra.Ratio), len(om)
 	for i := 0; i < nE; i++ {
 		if ra.RatioOK[i] && rb.RatioOK[i] {
 			diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
@@ -1097,7 +1120,7 @@ func appendResampleDiffs(diffs [][]float64, ra, rb *Values) {
 	}
 	if ra.N > 0 {
 		for t := 0; t < nT; t++ {
-			diffs[nE+t] = append(diffs[nE+t], ra.Omission[t]-rb.Omission[t])
+			diffs[nE+t] = append(diffs[nE+t], ra.Omission[om[t][0]]-rb.Omission[om[t][1]])
 		}
 	}
 	if ra.BoyceOK && rb.BoyceOK {

@@ -404,6 +404,10 @@ func TestCompareMatchesReference(t *testing.T) {
 		}
 		cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 		diffs := make([][]float64, nE+nT+1)
+		same := make([][2]int, nT)
+		for t := range same {
+			same[t] = [2]int{t, t}
+		}
 		global := make([]int32, d.N)
 		on := func(e *Evaluator) []int32 {
 			cnt := make([]int32, len(e.ids))
@@ -417,7 +421,7 @@ func TestCompareMatchesReference(t *testing.T) {
 		for b2 := 0; b2 < d.B && len(common) > 0; b2++ {
 			d.fill(b2, global)
 			ra, rb := a.evalReference(on(a)), b.evalReference(on(b))
-			appendResampleDiffs(diffs, &ra, &rb)
+			appendResampleDiffs(diffs, &ra, &rb, same)
 		}
 		finishResampled(&cmp, diffs, d.B)
 		return cmp

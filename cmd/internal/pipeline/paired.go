@@ -3,6 +3,7 @@ package pipeline
 import (
 	"fmt"
 	"runtime"
+	"slices"
 	"sync"
 
 	"areasweep/extent/vocab"
@@ -147,7 +148,7 @@ func (s *Study) comparePair(kind report.PairKind, ma, ea, mb, eb string) ([]repo
 	if a == nil || b == nil {
 		return nil, fmt.Errorf("paired %s: no evaluator for %s/%s or %s/%s", kind, ma, ea, mb, eb)
 	}
-	return pairedRecords(kind, ma, ea, mb, eb, a, b, s.draws(), s.o.E, s.thresholdKeys(ma))
+	return pairedRecords(kind, ma, ea, mb, eb, a, b, s.draws(), s.o.E, s.thresholdKeys(ma), s.thresholdKeys(mb))
 }
 
 // thresholdKeys returns the omission metric keys of model's thresholds, in
@@ -168,9 +169,20 @@ func (s *Study) thresholdKeys(model string) []string {
 // pairedRecords compares evaluator a (model ma on extent ea) with b (mb on
 // eb) and returns one report.Paired per score: both AUCs from the
 // placements, the partial ROC ratio per E, the omission rate per threshold
-// (keys name them) and the Boyce index from the paired resamples d.
-func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keys []string) ([]report.Paired, error) {
-	cmp, err := metrics.Compare(a, b, d)
+// (keysA and keysB name a's and b's) and the Boyce index from the paired
+// resamples d. The omission rates are compared at the thresholds both
+// sides have, in a's order: two models need not have the same ones (one
+// with no data on any training point has no training-presence
+// threshold).
+func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Evaluator, d metrics.Draws, es []float64, keysA, keysB []string) ([]report.Paired, error) {
+	var keys []string
+	var om [][2]int
+	for i, k := range keysA {
+		if j := slices.Index(keysB, k); j >= 0 {
+			keys, om = append(keys, k), append(om, [2]int{i, j})
+		}
+	}
+	cmp, err := metrics.CompareThresholds(a, b, d, om)
 	if err != nil {
 		return nil, err
 	}
@@ -217,9 +229,7 @@ func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Ev
 		}
 	}
 	for t, key := range keys {
-		if t < len(cmp.Omission) {
-			res(key, cmp.Omission[t], fa.Omission[t], fb.Omission[t], true)
-		}
+		res(key, cmp.Omission[t], fa.Omission[om[t][0]], fb.Omission[om[t][1]], true)
 	}
 	res("boyce", cmp.Boyce, fa.Boyce, fb.Boyce, fa.BoyceOK && fb.BoyceOK)
 	return out, nil
