@@ -142,7 +142,13 @@ func (e *Evaluator) groupSet(keep []int) *groupSet {
 	}
 	// kBefore[g]: kept groups before group g.
 	kBefore := make([]int, nG+1)
-	gs := &groupSet{p: &presences{}}
+	kept := 0
+	for _, c := range inSet {
+		if c > 0 {
+			kept++
+		}
+	}
+	gs := &groupSet{p: &presences{xgt: make([]float64, 0, kept), xge: make([]float64, 0, kept), count: make([]int, 0, kept)}}
 	for g, c := range inSet {
 		kBefore[g+1] = kBefore[g]
 		if c > 0 {

@@ -280,7 +280,11 @@ type presences struct {
 func newPresences(c *cumulative, idx []int) *presences {
 	sorted := slices.Clone(idx)
 	slices.Sort(sorted)
-	p := &presences{n: len(idx), c: c, member: make([]int, len(sorted))}
+	// At most one group per presence: the groups' slices are sized once.
+	n := len(sorted)
+	p := &presences{n: n, c: c, member: make([]int, n),
+		j: make([]int, 0, n), count: make([]int, 0, n),
+		xgt: make([]float64, 0, n), xge: make([]float64, 0, n), below: make([]float64, 0, n)}
 	for i := len(sorted) - 1; i >= 0; i-- {
 		j := sorted[i]
 		if k := len(p.j); k > 0 && p.j[k-1] == j {

@@ -55,17 +55,20 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 	return p, nil
 }
 
-// sortingBias records every scored extent's spatial sorting bias: the test
-// points' geodesic distances to the nearest training point (from their own
-// coordinates, as nearest_train_km) against the extent's cells' (bg).
-func (s *Study) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
-	t0 := time.Now()
+// sortingBiases computes every scored extent's spatial sorting bias: the
+// test points' geodesic distances to the nearest training point (from
+// their own coordinates, as nearest_train_km) against the extent's cells'
+// (bg); nil for a member not scored. It only reads the study and bg (the
+// pass is over), so it runs beside the null's scoring (Score), which
+// leaves the extents alone; recordSortingBias records the results.
+func (s *Study) sortingBiases(ix *geodesy.Index, bg *nullmodel.Background) []*nullmodel.SortingBias {
 	dist := make([]float64, len(s.points))
 	for j, p := range s.points {
 		if p.Status == vocab.PointScored && p.Role == vocab.RoleTest {
 			_, dist[j] = ix.Nearest(s.lonlat[j].Lat, s.lonlat[j].Lon, 0)
 		}
 	}
+	out := make([]*nullmodel.SortingBias, len(s.fam.Members))
 	for k, mem := range s.fam.Members {
 		if k >= len(s.res.Extents) || mem.Status != vocab.StatusOK {
 			continue
@@ -77,6 +80,19 @@ func (s *Study) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 			}
 		}
 		sb := bg.SortingBias(k, test)
+		out[k] = &sb
+	}
+	return out
+}
+
+// recordSortingBias records the sorting biases of sortingBiases (sbs, in
+// member order) into the extents and logs them, with the time d they took.
+func (s *Study) recordSortingBias(sbs []*nullmodel.SortingBias, d time.Duration) {
+	for k, sb := range sbs {
+		if sb == nil {
+			continue
+		}
+		mem := s.fam.Members[k]
 		s.res.Extents[k].SortingBias = &report.SortingBias{Defined: sb.Defined, Reason: sb.Reason, TestPoints: sb.TestN,
 			TestMeanKm: sb.TestMeanM / 1000, TestMedianKm: sb.TestMedianM / 1000,
 			BackgroundMeanKm: sb.BackgroundMeanM / 1000, BackgroundMedianKm: sb.BackgroundMedianM / 1000,
@@ -86,5 +102,5 @@ func (s *Study) sortingBias(ix *geodesy.Index, bg *nullmodel.Background) {
 				sb.TestMeanM/1000, sb.BackgroundMeanM/1000, sb.RatioMean, sb.RatioMedian)
 		}
 	}
-	s.logf("sorting bias on %d extents in %.1f s", len(s.fam.Members), time.Since(t0).Seconds())
+	s.logf("sorting bias on %d extents in %.1f s", len(s.fam.Members), d.Seconds())
 }

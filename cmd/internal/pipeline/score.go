@@ -12,6 +12,7 @@ import (
 
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent/geodesy"
+	"areasweep/extent/nullmodel"
 	"areasweep/extent/vocab"
 	"areasweep/metrics"
 	"areasweep/report"
@@ -50,6 +51,46 @@ func (s *Study) split(vals []float64, valid []bool) modelPoints {
 func (s *Study) Score(p *Plan, sums *Sums) error {
 	t0 := time.Now()
 	m := s.recordModel(p.Model, sums)
+	// The distance-only null's sorting bias (one goroutine, most of it
+	// adding up the pass's distance histograms) is computed beside the
+	// scoring of the extents, and recorded after it.
+	type sortingBias struct {
+		sbs []*nullmodel.SortingBias
+		d   time.Duration
+		err error
+	}
+	var sbDone chan sortingBias
+	if p.null != nil {
+		sbDone = make(chan sortingBias, 1)
+		go func() {
+			var r sortingBias
+			t := time.Now()
+			r.err = recovered("the sorting bias", func() error {
+				r.sbs = s.sortingBiases(p.null.ix, &p.null.bg)
+				return nil
+			})
+			r.d = time.Since(t)
+			sbDone <- r
+		}()
+	}
+	// wait returns err once the sorting bias is done (so that nothing
+	// runs past Score), or the sorting bias's error.
+	wait := func(err error) error {
+		if sbDone == nil {
+			return err
+		}
+		r := <-sbDone
+		sbDone = nil
+		if err != nil {
+			return err
+		}
+		if r.err != nil {
+			return r.err
+		}
+		s.res.Settings.DistanceNull = true
+		s.recordSortingBias(r.sbs, r.d)
+		return nil
+	}
 	// Training-presence thresholds come from all of the model's scored
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
@@ -80,20 +121,16 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	wg.Wait()
 	for k := range n {
 		if errs[k] != nil {
-			return errs[k]
+			return wait(errs[k])
 		}
 		s.recordExtent(m.Name, scores[k])
 	}
 	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(s.fam.Members), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, sums.Accs, in.values); err != nil {
-		return err
+		return wait(err)
 	}
 	s.omissions(m.Name, mp)
-	if p.null != nil {
-		s.res.Settings.DistanceNull = true
-		s.sortingBias(p.null.ix, &p.null.bg)
-	}
-	return nil
+	return wait(nil)
 }
 
 // parallel calls f(0), ..., f(n-1) on the run's workers and returns when
