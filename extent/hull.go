@@ -320,7 +320,10 @@ const capMargin = 1e-9
 // cell is inside; when some edge (or the projection's hemisphere) has
 // u_c.m/|m| <= -(sin alpha + capMargin), every cell is outside. A tile
 // whose centre or a corner has no coordinates, or that neither settles,
-// is tested cell by cell, as on a latitude-longitude grid.
+// is tested cell by cell, as on a latitude-longitude grid. Like the
+// distance fields' tiles, a tile whose centre and corners have
+// coordinates is taken to have them at every cell (where a projection
+// inverts is convex at the scale of a tile).
 func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, in rowRuns)) {
 	hc := s.newHullCap(box)
 	bands := make(chan int)
