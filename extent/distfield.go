@@ -230,9 +230,8 @@ func classGap(cuts []float64, lo, hi float64) (gap float64, cls int) {
 func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos *tileRadii) (settled bool, hi, rho float64) {
 	g := b.g
 	band, maxD := fl.band, fl.maxD
-	lons, lats := pts.lons, pts.lats
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
-	clat, clon := lats[kc][cc], lons[kc][cc]
+	clat, clon := pts.ll(kc, cc)
 	if math.IsNaN(clat) {
 		return false, math.Inf(1), 0
 	}
@@ -244,10 +243,11 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 	if !known {
 		for _, k := range []int{r0 - band, r1 - 1 - band} {
 			for _, c := range []int{c0, c1 - 1} {
-				if math.IsNaN(lats[k][c]) {
+				lat, lon := pts.ll(k, c)
+				if math.IsNaN(lat) {
 					return false, math.Inf(1), 0
 				}
-				rho = math.Max(rho, sphereDistance(clat, clon, lats[k][c], lons[k][c]))
+				rho = math.Max(rho, sphereDistance(clat, clon, lat, lon))
 			}
 		}
 		// Corner cells are the farthest from the centre cell on these
@@ -367,6 +367,11 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 	listed := near != nil && near.Len() > 0
 	for r := t0; r < t1; r++ {
 		k := r - band
+		if !pts.perRow {
+			// Every cell of the walked row is read (pts.in), and its left
+			// neighbour for the first step: made in one call.
+			pts.make(k, max(c0-1, 0), c1)
+		}
 		lons, lats := pts.lons[k], pts.lats[k]
 		hs := st.h[k]
 		up := k > 0 && st.v[k-1] >= 0
@@ -494,16 +499,17 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 	if !math.IsInf(hi, 1) {
 		return st.listNear(ix, &pt, hi+2*rho)
 	}
-	clat, clon := pts.lats[kc][cc], pts.lons[kc][cc]
+	clat, clon := pts.ll(kc, cc)
 	if math.IsNaN(clat) {
 		return nil
 	}
 	for _, k := range []int{t0 - band, t1 - 1 - band} {
 		for _, c := range []int{c0, c1 - 1} {
-			if math.IsNaN(pts.lats[k][c]) {
+			lat, lon := pts.ll(k, c)
+			if math.IsNaN(lat) {
 				return nil
 			}
-			rho = math.Max(rho, sphereDistance(clat, clon, pts.lats[k][c], pts.lons[k][c]))
+			rho = math.Max(rho, sphereDistance(clat, clon, lat, lon))
 		}
 	}
 	rho = rho*1.02 + 1
@@ -615,7 +621,13 @@ func (r reachBox) has(lon, lat float64) bool {
 // latitude-longitude grid every row is one parallel and every column one
 // meridian, so a cell's point costs a few multiplications from its row's
 // geodesy.Parallel and its column's sine and cosine (computed once per
-// worker); elsewhere each queried cell is prepared on its own. It also
+// worker); elsewhere each queried cell is prepared on its own, and its
+// coordinates are transformed to WGS84 only when the field first reads
+// them (ll, make): a tile settled whole reads its centre and corner cells
+// alone, so most cells are never transformed (one PROJ transform, about
+// 0.3 µs, was most of the field's cost on a projected grid). A cell's
+// coordinates are the same numbers whether it is transformed alone or
+// with its row (Grid.ToLonLat converts each point on its own). It also
 // keeps the last chord-nearest site as the hint of the next bounds query:
 // cells queried one after another are neighbours, with the same nearest
 // site or one close to it.
@@ -629,6 +641,11 @@ type bandPoints struct {
 	rowIn          [tileSide]bool
 	reach          reachBox
 	hint           int
+	// Projected grids: the grid, each band row's grid row, and whether
+	// each cell's coordinates are made yet.
+	g     *Grid
+	rowOf [tileSide]int
+	have  [][]bool
 }
 
 // prepareRow fills band row k with the coordinates of grid row r and
@@ -638,7 +655,16 @@ type bandPoints struct {
 func (p *bandPoints) prepareRow(g *Grid, r, k int) {
 	p.perRow = g.Geographic
 	if !p.perRow {
-		g.RowLonLat(r, p.lons[k], p.lats[k])
+		// Made on demand (see bandPoints).
+		if p.have == nil {
+			p.g = g
+			p.have = make([][]bool, tileSide)
+			for i := range p.have {
+				p.have[i] = make([]bool, g.Width)
+			}
+		}
+		p.rowOf[k] = r
+		clear(p.have[k])
 		return
 	}
 	if p.colLon == nil {
@@ -664,14 +690,42 @@ func (p *bandPoints) prepareRow(g *Grid, r, k int) {
 	p.rowIn[k] = lat >= p.reach.south && lat <= p.reach.north
 }
 
+// make transforms the cells of band row k in columns [c0, c1) that have
+// no coordinates yet (projected grids), each run of them in one call.
+func (p *bandPoints) make(k, c0, c1 int) {
+	have, lons, lats, r := p.have[k], p.lons[k], p.lats[k], p.rowOf[k]
+	for c := c0; c < c1; {
+		if have[c] {
+			c++
+			continue
+		}
+		a := c
+		for c < c1 && !have[c] {
+			lons[c], lats[c] = p.g.Centre(c, r)
+			have[c] = true
+			c++
+		}
+		p.g.ToLonLat(lons[a:c], lats[a:c], lons[a:c], lats[a:c])
+	}
+}
+
+// ll returns the latitude and longitude of cell (band row k, column c),
+// made first when they are not yet (projected grids).
+func (p *bandPoints) ll(k, c int) (lat, lon float64) {
+	if !p.perRow && !p.have[k][c] {
+		p.make(k, c, c+1)
+	}
+	return p.lats[k][c], p.lons[k][c]
+}
+
 // in reports whether cell (band row k, column c) has coordinates and lies
 // in the reach box.
 func (p *bandPoints) in(k, c int) bool {
 	if p.perRow {
 		return p.rowIn[k] && p.colIn[c]
 	}
-	lat := p.lats[k][c]
-	return !math.IsNaN(lat) && p.reach.has(p.lons[k][c], lat)
+	lat, lon := p.ll(k, c)
+	return !math.IsNaN(lat) && p.reach.has(lon, lat)
 }
 
 // at returns the point of cell (band row k, column c).
@@ -679,7 +733,7 @@ func (p *bandPoints) at(k, c int) geodesy.Point {
 	if p.perRow {
 		return p.rows[k].Point(p.lons[k][c], p.colSin[c], p.colCos[c])
 	}
-	return geodesy.NewPoint(p.lats[k][c], p.lons[k][c])
+	return geodesy.NewPoint(p.ll(k, c))
 }
 
 // bounds is ix.TightBoundsAt at pt, started from the hint.

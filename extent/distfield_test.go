@@ -75,6 +75,47 @@ func TestDistanceFieldExact(t *testing.T) {
 	}
 }
 
+// TestDistanceFieldExactProjected is TestDistanceFieldExact on projected
+// grids where a cell's coordinates are transformed only when the field
+// reads them (bandPoints): polar stereographic cells of 25 km around the
+// North Pole (EPSG:3413), a Mercator centred on 150°E whose cells cross
+// the antimeridian (EPSG:3832), and UTM zone 33N cells of 20 km from 10°
+// to 30° east of its central meridian (EPSG:32633), with scattered sites
+// and many close cuts.
+func TestDistanceFieldExactProjected(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 31))
+	for _, tc := range []struct {
+		name, crs   string
+		gt          [6]float64
+		w, h        int
+		lat0, lat1  float64
+		lon0, lon1  float64
+		step, ncuts float64
+	}{
+		{"polar", "EPSG:3413", [6]float64{-1e6, 25000, 0, 1e6, 0, -25000}, 80, 80, 81, 89.5, -180, 180, 15e3, 20},
+		{"antimeridian", "EPSG:3832", [6]float64{2.3e6, 25000, 0, 2.2e6, 0, -25000}, 90, 80, 2, 18, 172, 188, 15e3, 20},
+		{"utm-far", "EPSG:32633", [6]float64{1.2e6, 20000, 0, 5.6e6, 0, -20000}, 80, 60, 40, 50, 25, 42, 12e3, 20},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			var lats, lons []float64
+			for range 40 {
+				lats = append(lats, tc.lat0+(tc.lat1-tc.lat0)*rng.Float64())
+				lons = append(lons, math.Remainder(tc.lon0+(tc.lon1-tc.lon0)*rng.Float64(), 360))
+			}
+			var cuts []float64
+			for d := tc.step; d <= tc.ncuts*tc.step; d += tc.step {
+				cuts = append(cuts, d)
+			}
+			checkDistanceField(t, g, lats, lons, cuts)
+		})
+	}
+}
+
 func checkDistanceField(t *testing.T, g *Grid, lats, lons, cuts []float64) {
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {

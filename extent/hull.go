@@ -248,6 +248,22 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 	}
 	// Cells inside the hull belong to every member (all buffers contain
 	// the hull). Rows are tested in parallel, each writing only its own.
+	done := func(row int, in rowRuns) {
+		j := 0
+		for i, k := range members {
+			if dm[i] == 0 {
+				b.f.cells[k].rows[row] = in
+				continue
+			}
+			b.f.cells[k].rows[row] = union(nil, in, near[row][j])
+			j++
+		}
+		near[row] = nil
+	}
+	if !g.Geographic {
+		h.projectedRows(g, box, done)
+		return nil
+	}
 	parallelRows(g.Height, func() func(row int) {
 		lonsR := make([]float64, g.Width)
 		latsR := make([]float64, g.Width)
@@ -266,19 +282,97 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 					}
 				}
 			}
-			j := 0
-			for i, k := range members {
-				if dm[i] == 0 {
-					b.f.cells[k].rows[row] = in
-					continue
-				}
-				b.f.cells[k].rows[row] = union(nil, in, near[row][j])
-				j++
-			}
-			near[row] = nil
+			done(row, in)
 		}
 	})
 	return nil
+}
+
+// capMargin is the margin (radians, or its sine) by which projectedRows
+// keeps a tile's cap clear of the hull's great circles and of the box's
+// edges: far above the rounding of the planar test (about 1e-15 of the
+// coordinates), far below a cell.
+const capMargin = 1e-9
+
+// projectedRows calls done(row, runs) for every row of a projected grid
+// g, from several goroutines (never twice for a row), with the runs of
+// its cells inside the hull and the box: the cells for which the test of
+// a latitude-longitude grid's rows (box.has and contains at the cell's
+// centre) holds, the same cells. The grid is walked in tiles of tileSide
+// x tileSide cells, and only the centre and corner cells of a tile are
+// transformed to WGS84 when they settle it (bandPoints makes the
+// coordinates it reads): with u_c the unit vector of the centre cell
+// (unitVector of its geodetic latitude and longitude) and alpha =
+// 1.02 theta + 1/a, theta the largest angle from u_c to a corner cell's
+// (the same rule as the distance fields' tile radius: corner cells are the
+// farthest on these small tiles, 2% for the curvature of the tile's edges,
+// 1 m), every cell's unit vector lies in the cap of angular radius alpha
+// around u_c. In the gnomonic plane of the hull, P = (u.e1, u.e2)/(u.c),
+// edge A -> B keeps u when
+//
+//	(B - A) x (P - A) >= 0  <=>  u.m >= 0,  m = (bx - ax)(e2 - ay c) - (by - ay)(e1 - ax c)
+//
+// (multiplied by u.c > 0), a hemisphere, and the cap lies in the
+// hemisphere u.m >= 0 when u_c.m/|m| >= sin alpha, in u.m < 0 when
+// u_c.m/|m| <= -sin alpha. So when u_c.m/|m| >= sin alpha + capMargin
+// for every edge, and u_c.c as well (every cell projects), and the cap's
+// latitudes and longitudes lie in the box by capMargin degrees, every
+// cell is inside; when some edge (or the projection's hemisphere) has
+// u_c.m/|m| <= -(sin alpha + capMargin), every cell is outside. A tile
+// whose centre or a corner has no coordinates, or that neither settles,
+// is tested cell by cell, as on a latitude-longitude grid. Like the
+// distance fields' tiles, a tile whose centre and corners have
+// coordinates is taken to have them at every cell (where a projection
+// inverts is convex at the scale of a tile).
+func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, in rowRuns)) {
+	hc := s.newHullCap(box)
+	bands := make(chan int)
+	var wg sync.WaitGroup
+	for range runtime.GOMAXPROCS(0) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			pts := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
+			for k := range tileSide {
+				pts.lons[k], pts.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
+			}
+			var in [tileSide]rowRuns
+			for r0 := range bands {
+				h := min(tileSide, g.Height-r0)
+				for k := range h {
+					pts.prepareRow(g, r0+k, k)
+					in[k] = nil
+				}
+				for c0 := 0; c0 < g.Width; c0 += tileSide {
+					c1 := min(c0+tileSide, g.Width)
+					switch hc.side(pts, 0, h, c0, c1) {
+					case 1:
+						for k := range h {
+							in[k] = appendRun(in[k], int32(c0), int32(c1))
+						}
+					case 0:
+						for k := range h {
+							pts.make(k, c0, c1)
+							lons, lats := pts.lons[k], pts.lats[k]
+							for c := c0; c < c1; c++ {
+								if !math.IsNaN(lats[c]) && box.has(lons[c], lats[c]) && s.contains(lons[c], lats[c]) {
+									in[k] = appendRun(in[k], int32(c), int32(c+1))
+								}
+							}
+						}
+					}
+				}
+				for k := range h {
+					done(r0+k, in[k])
+				}
+			}
+		}()
+	}
+	for r0 := 0; r0 < g.Height; r0 += tileSide {
+		bands <- r0
+	}
+	close(bands)
+	wg.Wait()
 }
 
 // parallelRows calls the function made by newWorker for every row in
@@ -397,4 +491,90 @@ func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, insid
 		c = end
 	}
 	return out
+}
+
+// hullCap settles tiles of a projected grid against a hull and a box
+// (see projectedRows): the unit normals of the great circles that bound
+// the hull in the gnomonic plane, oriented inwards, and the projection's
+// centre last.
+type hullCap struct {
+	ms  [][3]float64
+	box reachBox
+}
+
+func (s *sphericalHull) newHullCap(box reachBox) hullCap {
+	n := len(s.poly)
+	ms := make([][3]float64, n+1)
+	for i := range n {
+		a, b := s.poly[i], s.poly[(i+1)%n]
+		dx, dy := b[0]-a[0], b[1]-a[1]
+		var m [3]float64
+		for k := range m {
+			m[k] = dx*(s.proj.e2[k]-a[1]*s.proj.c[k]) - dy*(s.proj.e1[k]-a[0]*s.proj.c[k])
+		}
+		ms[i] = normalize(m)
+	}
+	ms[n] = s.proj.c // u.c > 0: the cell projects
+	return hullCap{ms: ms, box: box}
+}
+
+// side returns 1 when every cell of band rows [k0,k1) and columns
+// [c0,c1) of pts is inside the hull and the box, -1 when none is, and 0
+// when the tile's centre and corner cells do not tell (see
+// projectedRows).
+func (hc hullCap) side(pts *bandPoints, k0, k1, c0, c1 int) int {
+	const deg = 180 / math.Pi
+	box := hc.box
+	kc, cc := (k0+k1)/2, (c0+c1)/2
+	clat, clon := pts.ll(kc, cc)
+	if math.IsNaN(clat) {
+		return 0
+	}
+	theta := 0.0
+	for _, k := range [2]int{k0, k1 - 1} {
+		for _, c := range [2]int{c0, c1 - 1} {
+			lat, lon := pts.ll(k, c)
+			if math.IsNaN(lat) {
+				return 0
+			}
+			theta = math.Max(theta, sphereDistance(clat, clon, lat, lon)/geodesy.SemiMajor)
+		}
+	}
+	alpha := theta*1.02 + 1/geodesy.SemiMajor
+	if alpha > 0.1 {
+		return 0
+	}
+	sa := math.Sin(alpha) + capMargin
+	uc := unitVector(clon, clat)
+	in := true
+	for _, m := range hc.ms {
+		d := dot(uc, m)
+		if d <= -sa {
+			return -1
+		}
+		in = in && d >= sa
+	}
+	if !in {
+		return 0
+	}
+	// The cap's latitudes are within alpha of the centre's, and its
+	// longitudes within asin(sin alpha / cos lat) when it holds no pole.
+	ad := alpha*deg + capMargin
+	if clat-ad < box.south || clat+ad > box.north {
+		return 0
+	}
+	if box.lonH < 180 {
+		cl := math.Cos((math.Abs(clat) + ad) / deg)
+		if !(cl > math.Sin(alpha)) {
+			return 0
+		}
+		dl := math.Mod(math.Abs(clon-box.lonC), 360)
+		if dl > 180 {
+			dl = 360 - dl
+		}
+		if dl+math.Asin(math.Sin(alpha)/cl)*deg+capMargin > box.lonH {
+			return 0
+		}
+	}
+	return 1
 }

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sync"
 	"testing"
 )
 
@@ -72,4 +73,108 @@ func TestHullRowRuns(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestHullProjectedRows: the tiled hull test of a projected grid
+// (projectedRows: tiles settled from their centre and corner cells, the
+// others tested cell by cell) gives exactly the cells of the per-cell test
+// at every cell's WGS84 centre (brute force over every cell), on polar
+// stereographic grids with the hull around the North Pole (EPSG:3413) and
+// off it, a Mercator grid across the antimeridian (EPSG:3832), UTM cells
+// 10° to 30° east of their central meridian (EPSG:32633) and Lambert
+// azimuthal equal-area over Europe (EPSG:3035) reaching beyond the
+// projection's disc, with a tight box (n odd) and the whole globe; and
+// it requires tiles settled both inside and outside.
+func TestHullProjectedRows(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 21))
+	type tc struct {
+		crs              string
+		gt               [6]float64
+		w, h             int
+		lon, lat, spread float64
+	}
+	cases := []tc{
+		{"EPSG:3413", [6]float64{-1.5e6, 25000, 0, 1.5e6, 0, -25000}, 120, 120, 0, 85, 6},
+		{"EPSG:3413", [6]float64{-3e6, 33000, 0, 1e6, 0, -33000}, 120, 90, -60, 72, 8},
+		{"EPSG:3832", [6]float64{2.3e6, 22000, 0, 2.2e6, 0, -22000}, 120, 100, 180, 8, 7},
+		{"EPSG:32633", [6]float64{1.2e6, 15000, 0, 5.6e6, 0, -15000}, 120, 80, 35, 46, 5},
+		{"EPSG:3035", [6]float64{4.321e6 - 1.4e7, 100000, 0, 3.21e6 + 1.4e7, 0, -100000}, 280, 280, 10, 50, 30},
+	}
+	settled := [2]int{}
+	for n, c := range cases {
+		t.Run(fmt.Sprintf("%d-%s", n, c.crs), func(t *testing.T) {
+			g, err := NewGrid(c.w, c.h, c.gt, c.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			var pts []LonLat
+			for range 40 {
+				pts = append(pts, LonLat{Lon: c.lon + 2*c.spread*(2*rng.Float64()-1), Lat: math.Max(-89, math.Min(89, c.lat+c.spread*(2*rng.Float64()-1)))})
+			}
+			h, err := newSphericalHull(pts)
+			if err != nil {
+				t.Fatal(err)
+			}
+			box := reachBox{south: -90, north: 90, lonH: 360}
+			if n%2 == 1 {
+				box = reachBox{south: c.lat - c.spread*0.8, north: c.lat + c.spread*0.8, lonC: c.lon, lonH: c.spread * 1.5}
+			}
+			got := make([]rowRuns, g.Height)
+			calls := make([]int, g.Height)
+			var mu sync.Mutex
+			h.projectedRows(g, box, func(row int, in rowRuns) {
+				mu.Lock()
+				got[row] = in
+				calls[row]++
+				mu.Unlock()
+			})
+			lons := make([]float64, g.Width)
+			lats := make([]float64, g.Width)
+			cells := 0
+			for row := 0; row < g.Height; row++ {
+				if calls[row] != 1 {
+					t.Fatalf("row %d given %d times", row, calls[row])
+				}
+				g.RowLonLat(row, lons, lats)
+				var want rowRuns
+				for c := 0; c < g.Width; c++ {
+					if !math.IsNaN(lats[c]) && box.has(lons[c], lats[c]) && h.contains(lons[c], lats[c]) {
+						want = appendRun(want, int32(c), int32(c+1))
+						cells++
+					}
+				}
+				if !slices.Equal(got[row], want) {
+					t.Fatalf("row %d: %v, per-cell test %v", row, got[row], want)
+				}
+			}
+			if cells == 0 {
+				t.Fatal("no cell inside: the case does not probe the hull")
+			}
+			// The tiles hullCap settles, inside and outside.
+			hc := h.newHullCap(box)
+			bp := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
+			for k := range tileSide {
+				bp.lons[k], bp.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
+			}
+			for r0 := 0; r0 < g.Height; r0 += tileSide {
+				hb := min(tileSide, g.Height-r0)
+				for k := range hb {
+					bp.prepareRow(g, r0+k, k)
+				}
+				for c0 := 0; c0 < g.Width; c0 += tileSide {
+					switch hc.side(bp, 0, hb, c0, min(c0+tileSide, g.Width)) {
+					case 1:
+						settled[0]++
+					case -1:
+						settled[1]++
+					}
+				}
+			}
+		})
+	}
+	if settled[0] == 0 || settled[1] == 0 {
+		t.Errorf("%d tiles settled inside and %d outside: the cases do not probe both", settled[0], settled[1])
+	}
+	t.Logf("%d tiles settled inside, %d outside", settled[0], settled[1])
 }
