@@ -151,6 +151,24 @@ func (b *builder) finish(trainCells, testCells []int) {
 			}
 		}
 	}
+	// A duplicate holds no cell of its own (it is scored under the member
+	// it equals) but is measured as that member: the same cells, area,
+	// share and points (DuplicateOf names an earlier member with status
+	// ok, so it is already measured).
+	index := make(map[string]int, n)
+	for k, m := range f.Members {
+		index[m.ID] = k
+	}
+	for k := range f.Members {
+		m := &f.Members[k]
+		if m.Status != vocab.StatusDuplicate {
+			continue
+		}
+		if j, ok := index[m.DuplicateOf]; ok && j < k {
+			o := f.Members[j]
+			m.Cells, m.AreaKm2, m.Share, m.TrainPoints, m.TestPoints = o.Cells, o.AreaKm2, o.Share, o.TrainPoints, o.TestPoints
+		}
+	}
 	// Chains: keep only members with Status ok, and check nesting.
 	names := make([]string, 0, len(f.Chains))
 	for name := range f.Chains {
