@@ -576,11 +576,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 		}
 		var se *staleError
 		var de *damagedError
+		var ue *batch.UnreadableError
 		switch {
 		case errors.As(err, &se):
 			stale++
-		case errors.As(err, &de):
-			damaged++
+		case errors.As(err, &de), errors.As(err, &ue):
+			damaged++ // the user's to fix first: see its line
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -601,12 +602,24 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	case stale == failed:
 		again = "--force runs them again (they were made from other settings or inputs)"
 	case stale > 0 || damaged > 0:
-		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json (see their lines)"
+		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json or an input that cannot be read (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
 	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
 		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
+}
+
+// forceNote adds to the error of a study whose recorded input cannot be
+// read (batch.UnreadableError) that --force, when given, does not get past
+// it: --force runs studies again and replaces areasweep's own files; it
+// never skips a check of an input.
+func forceNote(o *BatchOptions, err error) error {
+	var ue *batch.UnreadableError
+	if o.Force && errors.As(err, &ue) {
+		return fmt.Errorf("%w; --force does not get past this: it runs studies again and replaces areasweep's own files, never skips reading an input", err)
+	}
+	return err
 }
 
 // staleError is the error of a finished study made from other settings or
@@ -716,7 +729,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		s, why, err := st.state()
 		switch {
 		case err != nil:
-			errs[i] = err
+			errs[i] = forceNote(o, err)
 			continue
 		case s == stateDone:
 			p.line(st.id, "already finished, skipped")
