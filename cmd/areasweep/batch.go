@@ -877,42 +877,51 @@ func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units
 
 // runUnit runs one unit and writes its completion marker: the study's
 // folder for a whole study or a merge, the shard's folder for a shard.
+// The marker is written into the run's staging folder (pipeline.IO.Seal)
+// and moved into place with the outputs, after them: a unit killed at any
+// moment (SIGKILL at a scheduler's time limit) leaves either its folder
+// as it was, to be run again, or every output with its marker, never
+// finished outputs without a marker (which a re-run would refuse as a
+// folder it did not make) nor a marker beside half-moved outputs.
 func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error {
 	po := st.opts.Options
 	po.Quiet, po.Version = true, version
 	var read []pipeline.InputFile
-	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f }}
+	var m batch.Marker
+	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f },
+		Seal: func(stage string) error {
+			if u.shard == 0 {
+				sum, err := batch.FileSHA256(filepath.Join(stage, "results.json"))
+				if err != nil {
+					return err
+				}
+				m["results"] = sum
+			}
+			m.SetInputs(markerInputs(read))
+			return batch.WriteMarker(stage, m)
+		}}
 	if u.shard > 0 {
 		po.Out = shardDir(o.Out, st.id, u.shard)
-		if s, _, _ := shardState(o.Out, st, u.shard); s == stateStale {
-			po.Force = true
-		}
-		if err := pipeline.RunShard(ctx, po, pio, u.shard, o.Shards); err != nil {
-			return err
-		}
-		m := batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
-		m.SetInputs(markerInputs(read))
-		return batch.WriteMarker(po.Out, m)
+		// The shard's folder is the batch's own, and a shard replaces
+		// only its own partial file and log: a folder left without a
+		// marker (a shard stopped before it could write one, or made
+		// from other settings) is run into again without --force.
+		po.Force = true
+		m = batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
+		return pipeline.RunShard(ctx, po, pio, u.shard, o.Shards)
 	}
+	m = batch.Marker{"study": st.id, "settings": st.settings}
 	if u.merge {
 		files := make([]string, o.Shards)
 		for k := range files {
 			files[k] = shardDir(o.Out, st.id, k+1)
 		}
 		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: version}
-		if _, err := pipeline.Merge(ctx, mo, pio); err != nil {
-			return err
-		}
-	} else if _, err := pipeline.Run(ctx, po, pio); err != nil {
+		_, err := pipeline.Merge(ctx, mo, pio)
 		return err
 	}
-	sum, err := batch.FileSHA256(filepath.Join(st.dir, "results.json"))
-	if err != nil {
-		return err
-	}
-	m := batch.Marker{"study": st.id, "settings": st.settings, "results": sum}
-	m.SetInputs(markerInputs(read))
-	return batch.WriteMarker(st.dir, m)
+	_, err := pipeline.Run(ctx, po, pio)
+	return err
 }
 
 // writeBatchSummary loads each finished study's results.json (the same

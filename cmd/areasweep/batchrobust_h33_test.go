@@ -3,8 +3,10 @@ package main
 import (
 	"bytes"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 )
 
@@ -72,5 +74,139 @@ func TestBatchUnreadableInputForce(t *testing.T) {
 	laterTime(t, aux)
 	if _, se, code := runBin(t, "batch", table, "--out", out); code != 0 || !strings.Contains(se, "a: already finished, skipped") {
 		t.Errorf("readable again: exit %d: %s", code, se)
+	}
+}
+
+// TestBatchKilledStudyRerun: a study's task killed with SIGKILL (as SLURM
+// does at the time limit, after the grace time) while it runs, into a new
+// study folder (a) or into one that already exists, empty (b, as an
+// earlier array script made it). The summary does not count either as
+// finished, and the same batch command run again, without --force and
+// without cleaning by hand, runs both, removes the killed runs' staging
+// folders and leaves nothing else behind.
+func TestBatchKilledStudyRerun(t *testing.T) {
+	dir, _ := inputsStudy(t)
+	table := filepath.Join(dir, "slow.csv")
+	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n# iterations: 4000\n" +
+		"id,model,occurrences,region\n" +
+		"a,m=model.tif,occ.csv,region.geojson\n" +
+		"b,m=model.tif,occ_b.csv,region.geojson\n"
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "runs")
+	if err := os.MkdirAll(filepath.Join(out, "b"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	var stages []string
+	for _, id := range []string{"a", "b"} {
+		cmd := exec.Command(areasweepBin, "batch", table, "--out", out, "--only", id, "--jobs", "1", "--quiet")
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		stage := waitForStage(t, filepath.Join(out, id))
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+		if _, err := os.Stat(stage); err != nil {
+			t.Fatalf("%s: the killed task left no staging folder (%v): the kill came too late to test anything", id, err)
+		}
+		stages = append(stages, stage)
+		if _, err := os.Stat(filepath.Join(out, id, ".areasweep-done")); err == nil {
+			t.Fatalf("%s: a completion marker beside a killed run", id)
+		}
+	}
+	_, se, code := runBin(t, "batch", table, "--out", out, "--summary-only")
+	if code != 1 || !strings.Contains(se, "2 of 2 studies failed") {
+		t.Errorf("summary after the kills: exit %d, want 1 with both studies unfinished: %s", code, se)
+	}
+	for _, r := range readSummary(t, out) {
+		if r["status"] != "failed" || !strings.Contains(r["error"], "not finished") {
+			t.Errorf("summary row %v; want the killed study listed as not finished", r)
+		}
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out); code != 0 {
+		t.Fatalf("the same command after the kills: exit %d: %s", code, se)
+	}
+	for _, p := range stages {
+		if _, err := os.Stat(p); err == nil {
+			t.Errorf("the killed run's staging folder %s kept", p)
+		}
+	}
+	if l := leftovers(out); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+	for _, r := range readSummary(t, out) {
+		if r["status"] != "ok" {
+			t.Errorf("summary row %v after the rerun", r)
+		}
+	}
+}
+
+// TestBatchMarkerArrivesWithOutputs: a study's completion marker is moved
+// into place with its outputs, not written after them. Into a new study
+// folder (a) no moment shows the outputs without the marker or the marker
+// without them (one rename): a task killed after its outputs arrived used
+// to leave a folder without a marker, which a re-run refused without
+// --force as not made by areasweep. Into a folder that exists, empty (b),
+// the entries are moved one by one and the marker last: no moment shows
+// the marker without every output. A watcher polls the study folder while
+// the batch runs.
+func TestBatchMarkerArrivesWithOutputs(t *testing.T) {
+	_, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "runs")
+	if err := os.MkdirAll(filepath.Join(out, "b"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	exists := func(p string) bool { _, err := os.Stat(p); return err == nil }
+	for _, id := range []string{"a", "b"} {
+		cmd := exec.Command(areasweepBin, "batch", table, "--out", out, "--only", id, "--jobs", "1", "--quiet")
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		sightings, bare, early := 0, 0, 0
+		marker := filepath.Join(out, id, ".areasweep-done")
+	watch:
+		for {
+			select {
+			case err := <-done:
+				if err != nil {
+					t.Fatalf("%s: %v", id, err)
+				}
+				break watch
+			default:
+			}
+			m := exists(marker)
+			all := true
+			for _, n := range []string{"results.json", "scores.csv", "report.html", "run.log"} {
+				all = all && exists(filepath.Join(out, id, n))
+			}
+			res := exists(filepath.Join(out, id, "results.json"))
+			if m && !all {
+				early++
+			}
+			if res && !exists(marker) { // checked after results.json: the rename brings both
+				bare++
+			}
+			if res {
+				sightings++
+			}
+		}
+		if early > 0 {
+			t.Errorf("%s: the marker was seen %d times before every output was in place", id, early)
+		}
+		if id == "a" && bare > 0 {
+			t.Errorf("%s: results.json seen %d times, %d of them without the completion marker", id, sightings, bare)
+		}
+		if !exists(marker) {
+			t.Errorf("%s: no marker after the run", id)
+		}
 	}
 }

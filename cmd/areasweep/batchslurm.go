@@ -105,7 +105,7 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 		name = name[:64]
 	}
 	p := &slurm.Plan{Name: name, Dir: slurmDir(out), CPUs: o.Slurm.CPUs, TimeLimit: o.Slurm.TimeLimit,
-		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true}
+		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true, CommandMakesOut: true}
 	var need int64
 	for _, st := range studies {
 		if o.Shards <= 1 {
