@@ -210,3 +210,58 @@ func TestBatchMarkerArrivesWithOutputs(t *testing.T) {
 		}
 	}
 }
+
+// TestSidecarInOutRefused: a file GDAL reads with a raster counts as an
+// input for the --out check whatever its kind, so --force never writes
+// where one lies. The model is named through a symbolic link in the
+// folder given as --out (data/model.tif, pointing to the raster in
+// store/), so that the sidecar beside the link, which GDAL finds by the
+// link's name, is the only input in that folder: a check of the model's
+// own (resolved) folder alone would let the run write there. One case
+// per name GDAL looks for (inputs.Sidecars; GDAL's own file list adds a
+// virtual raster's sources, covered by the bad-input table). The
+// contents are such that GDAL's reading of the model does not fail on
+// them (a world file with the model's own geotransform, a .prj with its
+// CRS; PAM, hence .aux and .aux.xml, is off in areasweep).
+func TestSidecarInOutRefused(t *testing.T) {
+	s := newSmallStudy(t)
+	wgs := `GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`
+	world := "0.25\n0\n0\n-0.25\n10.125\n47.875\n" // the small study's geotransform, cell centre of the first cell
+	for _, c := range []struct{ name, body string }{
+		{"model.aux", "not read: PAM is off"},
+		{"model.tif.aux.xml", "<PAMDataset></PAMDataset>\n"},
+		{"model.prj", wgs},
+		{"model.tfw", world},
+		{"model.tifw", world},
+		{"model.wld", world},
+		{"model.hdr", "ENVI\n"},
+		{"model.tif.hdr", "ENVI\n"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			root := t.TempDir()
+			data, store := filepath.Join(root, "data"), filepath.Join(root, "store")
+			for _, d := range []string{data, store} {
+				os.MkdirAll(d, 0o755)
+			}
+			b, err := os.ReadFile(s.model)
+			if err != nil {
+				t.Fatal(err)
+			}
+			os.WriteFile(filepath.Join(store, "model.tif"), b, 0o644)
+			if err := os.Symlink(filepath.Join(store, "model.tif"), filepath.Join(data, "model.tif")); err != nil {
+				t.Fatal(err)
+			}
+			side := filepath.Join(data, c.name)
+			os.WriteFile(side, []byte(c.body), 0o644)
+			before := treeSums(t, data)
+			_, se, code := runBin(t, "run", "--model", "m="+filepath.Join(data, "model.tif"), "--occurrences", s.occ, "--region", s.region,
+				"--iterations", "5", "--out", data, "--force", "--quiet")
+			if code != 2 || !strings.Contains(se, "holds the input "+side) || !strings.Contains(se, "whatever --force says") {
+				t.Errorf("exit %d, want 2 naming %s as an input: %s", code, side, se)
+			}
+			if !sameSums(before, treeSums(t, data)) || len(leftovers(root)) > 0 {
+				t.Errorf("the refused run changed %s: %v", data, leftovers(root))
+			}
+		})
+	}
+}
