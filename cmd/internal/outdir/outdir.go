@@ -702,20 +702,36 @@ var activeStaged struct {
 }
 
 // Stage makes a staging folder inside dir, removed by AbortAll. It first
-// removes the staging folders in dir of processes that no longer exist
-// (killed with SIGKILL, power cut); a folder whose process lives, or
-// whose name holds no process id, is left alone.
+// removes the staging folders in dir of processes that no longer run
+// (killed with SIGKILL, power cut), and only those provably so: a folder
+// holding an owner record (owner.go) for dir, written on this machine by
+// a process that no longer runs here. No lock guards dir, so a folder of
+// another machine (dir on shared storage, where another report may be
+// running), one without a record (the user's, an earlier version's, or
+// one made a moment ago whose record is not yet written) or one whose
+// process lives is left alone.
 func Stage(dir string) (*Staged, error) {
+	abs := dir
+	if a, err := filepath.Abs(dir); err == nil {
+		abs = realPath(a)
+	}
+	host, _ := os.Hostname()
 	if m, _ := filepath.Glob(filepath.Join(globEscape(dir), stagedPrefix+"*")); m != nil {
 		for _, p := range m {
-			pid, _, _ := strings.Cut(strings.TrimPrefix(filepath.Base(p), stagedPrefix), "-")
-			if n, err := strconv.Atoi(pid); err == nil && n > 0 && syscall.Kill(n, 0) == syscall.ESRCH {
+			if st, err := os.Lstat(p); err != nil || !st.IsDir() {
+				continue
+			}
+			if o, err := readOwner(p); err == nil && o.out == abs && o.host == host && !o.alive() {
 				os.RemoveAll(p)
 			}
 		}
 	}
 	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
 	if err != nil {
+		return nil, err
+	}
+	if err := writeOwner(p, abs); err != nil {
+		os.RemoveAll(p)
 		return nil, err
 	}
 	s := &Staged{Path: p}
