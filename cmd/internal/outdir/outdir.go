@@ -609,6 +609,7 @@ func (d *Dir) moveEntries() error {
 	sort.Strings(clash)
 	if len(clash) > 0 && !d.force {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		os.Remove(filepath.Join(d.Stage, OwnerName)) // a visible folder of results, the user's now
 		if err := os.Rename(d.Stage, keep); err != nil {
 			keep = d.Stage
 		}
@@ -629,6 +630,7 @@ func (d *Dir) moveEntries() error {
 	// during the run: nothing is replaced, as for a clash.
 	if found := d.foreign(replace, d.Stage); len(found) > 0 {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		os.Remove(filepath.Join(d.Stage, OwnerName)) // a visible folder of results, the user's now
 		if err := os.Rename(d.Stage, keep); err != nil {
 			keep = d.Stage
 		}

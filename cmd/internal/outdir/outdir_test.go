@@ -79,6 +79,9 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 		if b, _ := os.ReadFile(filepath.Join(kept, "results.json")); string(b) != "new" {
 			t.Errorf("results not kept in %s", kept)
 		}
+		if _, err := os.Stat(filepath.Join(kept, OwnerName)); err == nil {
+			t.Errorf("the owner record reached the kept results %s", kept)
+		}
 	})
 	t.Run("force replaces only areasweep's files", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
