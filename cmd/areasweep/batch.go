@@ -143,7 +143,7 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
 	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
-	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file); never past an input file that cannot be read")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
