@@ -8,6 +8,7 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 )
 
 // TestBatchUnreadableInputForce: a finished study one of whose recorded
@@ -87,7 +88,7 @@ func TestBatchUnreadableInputForce(t *testing.T) {
 func TestBatchKilledStudyRerun(t *testing.T) {
 	dir, _ := inputsStudy(t)
 	table := filepath.Join(dir, "slow.csv")
-	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n# iterations: 4000\n" +
+	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n# iterations: 1000\n" +
 		"id,model,occurrences,region\n" +
 		"a,m=model.tif,occ.csv,region.geojson\n" +
 		"b,m=model.tif,occ_b.csv,region.geojson\n"
@@ -108,6 +109,7 @@ func TestBatchKilledStudyRerun(t *testing.T) {
 			t.Fatal(err)
 		}
 		stage := waitForStage(t, filepath.Join(out, id))
+		time.Sleep(50 * time.Millisecond) // past the owner record, inside the run
 		cmd.Process.Signal(syscall.SIGKILL)
 		cmd.Wait()
 		if _, err := os.Stat(stage); err != nil {
@@ -183,6 +185,7 @@ func TestBatchMarkerArrivesWithOutputs(t *testing.T) {
 				break watch
 			default:
 			}
+			time.Sleep(50 * time.Microsecond) // leave the run most of a core
 			m := exists(marker)
 			all := true
 			for _, n := range []string{"results.json", "scores.csv", "report.html", "run.log"} {

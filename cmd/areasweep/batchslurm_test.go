@@ -230,9 +230,15 @@ func TestBatchOnClusterKilledTask(t *testing.T) {
 	// --signal=KILL would cancel the job, which sends SIGTERM first, and
 	// areasweep then removes its staging folder itself (exit 143).
 	stage := waitForStage(t, filepath.Join(out, "a"))
-	rec, err := os.ReadFile(filepath.Join(stage, ".areasweep-owner"))
-	pm := regexp.MustCompile(`(?m)^pid\t([0-9]+)$`).FindSubmatch(rec)
-	if err != nil || pm == nil {
+	var rec []byte
+	var pm [][]byte
+	var err error
+	for try := 0; try < 400 && pm == nil; try++ { // the record follows the folder by a moment
+		time.Sleep(5 * time.Millisecond)
+		rec, err = os.ReadFile(filepath.Join(stage, ".areasweep-owner"))
+		pm = regexp.MustCompile(`(?m)^pid\t([0-9]+)$`).FindSubmatch(rec)
+	}
+	if pm == nil {
 		scancel(m[1], mj[1])
 		t.Fatalf("the task's staging folder %s holds no owner record with its pid: %v %q", stage, err, rec)
 	}
