@@ -654,7 +654,7 @@ func recordFailure(out, id string, k int, err error) {
 		os.Remove(p)
 		return
 	}
-	if os.MkdirAll(filepath.Dir(p), 0o755) == nil {
+	if os.MkdirAll(filepath.Dir(p), 0o777) == nil {
 		outfile.Write(p, []byte(oneLine(fault.UserText(err))+"\n"), 0o666)
 	}
 }
@@ -678,7 +678,7 @@ func claimBatchDir(out string) error {
 	ents, err := os.ReadDir(out)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
-		if err := os.MkdirAll(out, 0o755); err != nil {
+		if err := os.MkdirAll(out, 0o777); err != nil {
 			return fmt.Errorf("cannot create --out %s: %w", out, err)
 		}
 	case err != nil:
@@ -691,7 +691,7 @@ func claimBatchDir(out string) error {
 			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, batchMarker))
 		}
 	}
-	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o755); err != nil {
+	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o777); err != nil {
 		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, batchMarker), err)
 	}
 	return nil

@@ -268,3 +268,32 @@ func TestSidecarInOutRefused(t *testing.T) {
 		})
 	}
 }
+
+// TestBatchFoldersHonourUmask: the folders a batch makes (--out, its own
+// .areasweep-batch, the SLURM plan's logs, each study's figures, the
+// summary's figures) are made 0777 less the umask, as the README says
+// and as run's are: under umask 002, on storage a group shares, they are
+// group-writable (0775), not 0755.
+func TestBatchFoldersHonourUmask(t *testing.T) {
+	_, table := inputsStudy(t)
+	old := syscall.Umask(0o002)
+	defer syscall.Umask(old)
+	root := t.TempDir()
+	out, plan := filepath.Join(root, "runs"), filepath.Join(root, "plan")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("batch: exit %d: %s", code, se)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", plan, "--slurm"); code != 0 {
+		t.Fatalf("batch --slurm: exit %d: %s", code, se)
+	}
+	for _, p := range []string{out, filepath.Join(out, batchMarker), filepath.Join(out, "a"), filepath.Join(out, "a", "figures"),
+		filepath.Join(out, "summary_figures"), filepath.Join(plan, batchMarker, "slurm", "logs")} {
+		st, err := os.Stat(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st.Mode().Perm() != 0o775 {
+			t.Errorf("%s has mode %v, want 0775 (0777 less the umask 002)", p, st.Mode().Perm())
+		}
+	}
+}

@@ -234,7 +234,7 @@ func (p *Plan) Write() (Files, error) {
 		Array:    filepath.Join(p.Dir, "array.sh"),
 		Logs:     filepath.Join(p.Dir, "logs"),
 	}
-	if err := os.MkdirAll(f.Logs, 0o755); err != nil {
+	if err := os.MkdirAll(f.Logs, 0o777); err != nil {
 		return Files{}, fmt.Errorf("slurm: creating the job folder: %w", err)
 	}
 	var m bytes.Buffer
