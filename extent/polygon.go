@@ -185,18 +185,14 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	// Invalid features (self-intersections, bad rings) are repaired with
 	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
 	// buffer would drop from a bow-tie, on a copy of the layer in memory.
-	if bad := invalidFeatures(layer); len(bad) > 0 {
+	if bad, why := invalidFeatures(layer); len(bad) > 0 {
 		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
 			return nil, warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
 		}
 		defer fixed.Close()
 		layer = fixed.Layers()[0]
-		if len(bad) == 1 {
-			warns = append(warns, fmt.Sprintf("%s feature %d had invalid geometry (e.g. a self-intersection); repaired with GDAL MakeValid", path, bad[0]))
-		} else {
-			warns = append(warns, fmt.Sprintf("%s features %s had invalid geometry (e.g. self-intersections); repaired with GDAL MakeValid", path, featureList(bad)))
-		}
+		warns = append(warns, repairWarning(path, bad, why))
 	}
 	byID := map[string]*godal.Geometry{}
 	var order []string
@@ -281,8 +277,11 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 				return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
 			}
 		}
-		if !own.Valid() {
-			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired; fix it in a GIS", path, fid)
+		if ok, why := validity(own); !ok {
+			if why != "" {
+				why = " (" + why + ", in the layer's coordinates)"
+			}
+			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired%s; fix it in a GIS", path, fid, why)
 		}
 		if prev, ok := byID[id]; ok {
 			un, err := prev.Union(own)
@@ -503,7 +502,7 @@ func polygonProblem(g *godal.Geometry) string {
 	case godal.GTPolygon, godal.GTMultiPolygon, godal.GTPolygon25D, godal.GTMultiPolygon25D:
 		// An invalid polygon (a bow-tie's halves cancel) is measured after
 		// repair, in readUnits.
-		if !(g.Area() > 0) && g.Valid() {
+		if !(g.Area() > 0) && valid(g) {
 			return "is a degenerate polygon with no area (its points lie on a line or repeat)"
 		}
 		return ""
@@ -575,21 +574,56 @@ func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field strin
 }
 
 // invalidFeatures returns the 1-based numbers of the layer's features whose
-// geometry is not valid.
-func invalidFeatures(layer godal.Layer) []int {
-	var bad []int
+// geometry is not valid, and for each why (validity: GEOS's reason in our
+// words, or "").
+func invalidFeatures(layer godal.Layer) (bad []int, why []string) {
 	layer.ResetReading()
 	for n := 1; ; n++ {
 		f := layer.NextFeature()
 		if f == nil {
 			break
 		}
-		if g := f.Geometry(); !noGeometry(g) && !g.Valid() {
-			bad = append(bad, n)
+		if g := f.Geometry(); !noGeometry(g) {
+			if ok, reason := validity(g); !ok {
+				bad, why = append(bad, n), append(why, reason)
+			}
 		}
 		f.Close()
 	}
-	return bad
+	return bad, why
+}
+
+// repairWarning is the warning for the features bad of path repaired with
+// MakeValid, each with why it was invalid (why[i] of bad[i], "" when GEOS
+// gave no reason that reads as one): the reasons of the first three,
+// their points in the layer's coordinates.
+func repairWarning(path string, bad []int, why []string) string {
+	var reasons []string
+	for i, n := range bad {
+		if len(reasons) == 3 {
+			break
+		}
+		if why[i] == "" {
+			continue
+		}
+		if len(bad) == 1 {
+			reasons = append(reasons, why[i])
+		} else {
+			reasons = append(reasons, fmt.Sprintf("feature %d: %s", n, why[i]))
+		}
+	}
+	detail := ""
+	if len(reasons) > 0 {
+		more := ""
+		if len(bad) > len(reasons) && len(bad) > 1 {
+			more = "; ..."
+		}
+		detail = " (" + strings.Join(reasons, "; ") + more + ", in the layer's coordinates)"
+	}
+	if len(bad) == 1 {
+		return fmt.Sprintf("%s feature %d had invalid geometry%s; repaired with GDAL MakeValid, which keeps all of its area: check the repaired outline in extents.gpkg", path, bad[0], detail)
+	}
+	return fmt.Sprintf("%s features %s had invalid geometry%s; repaired with GDAL MakeValid, which keeps all of their area: check the repaired outlines in extents.gpkg", path, featureList(bad), detail)
 }
 
 // shapeOf converts a GDAL geometry in the grid CRS to a Shape.

@@ -551,7 +551,7 @@ func WriteSummary(dir string, s *BatchSummary) error {
 	var svg []byte
 	if f, ok := effectFigure(s); ok {
 		figDir := filepath.Join(dir, SummaryFigures)
-		if err := os.MkdirAll(figDir, 0o755); err != nil {
+		if err := os.MkdirAll(figDir, 0o777); err != nil {
 			return fmt.Errorf("report: create %s: %w", figDir, err)
 		}
 		for _, format := range figureFormats {

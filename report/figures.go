@@ -142,7 +142,7 @@ func renderTasks(fs []figure) []renderTask {
 // figureFormats order, then withSVGs's; files drawn without error are
 // written even when another fails.
 func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) error) error {
-	if err := os.MkdirAll(figDir, 0o755); err != nil {
+	if err := os.MkdirAll(figDir, 0o777); err != nil {
 		return fmt.Errorf("report: create %s: %w", figDir, err)
 	}
 	errs := make([][]error, len(fs))

@@ -143,7 +143,7 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
 	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
-	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file)")
+	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file); never past an input file that cannot be read")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
@@ -576,11 +576,12 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 		}
 		var se *staleError
 		var de *damagedError
+		var ue *batch.UnreadableError
 		switch {
 		case errors.As(err, &se):
 			stale++
-		case errors.As(err, &de):
-			damaged++
+		case errors.As(err, &de), errors.As(err, &ue):
+			damaged++ // the user's to fix first: see its line
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
@@ -601,12 +602,24 @@ func failedStudies(o *BatchOptions, studies []*batchStudy, errs []error, failed 
 	case stale == failed:
 		again = "--force runs them again (they were made from other settings or inputs)"
 	case stale > 0 || damaged > 0:
-		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json (see their lines)"
+		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json or an input that cannot be read (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
 	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
 		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
+}
+
+// forceNote adds to the error of a study whose recorded input cannot be
+// read (batch.UnreadableError) that --force, when given, does not get past
+// it: --force runs studies again and replaces areasweep's own files; it
+// never skips a check of an input.
+func forceNote(o *BatchOptions, err error) error {
+	var ue *batch.UnreadableError
+	if o.Force && errors.As(err, &ue) {
+		return fmt.Errorf("%w; --force does not get past this: it runs studies again and replaces areasweep's own files, never skips reading an input", err)
+	}
+	return err
 }
 
 // staleError is the error of a finished study made from other settings or
@@ -641,7 +654,7 @@ func recordFailure(out, id string, k int, err error) {
 		os.Remove(p)
 		return
 	}
-	if os.MkdirAll(filepath.Dir(p), 0o755) == nil {
+	if os.MkdirAll(filepath.Dir(p), 0o777) == nil {
 		outfile.Write(p, []byte(oneLine(fault.UserText(err))+"\n"), 0o666)
 	}
 }
@@ -665,7 +678,7 @@ func claimBatchDir(out string) error {
 	ents, err := os.ReadDir(out)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
-		if err := os.MkdirAll(out, 0o755); err != nil {
+		if err := os.MkdirAll(out, 0o777); err != nil {
 			return fmt.Errorf("cannot create --out %s: %w", out, err)
 		}
 	case err != nil:
@@ -678,7 +691,7 @@ func claimBatchDir(out string) error {
 			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, batchMarker))
 		}
 	}
-	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o755); err != nil {
+	if err := os.MkdirAll(filepath.Join(out, batchMarker), 0o777); err != nil {
 		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, batchMarker), err)
 	}
 	return nil
@@ -716,7 +729,7 @@ func runStudies(ctx context.Context, o *BatchOptions, studies []*batchStudy, p *
 		s, why, err := st.state()
 		switch {
 		case err != nil:
-			errs[i] = err
+			errs[i] = forceNote(o, err)
 			continue
 		case s == stateDone:
 			p.line(st.id, "already finished, skipped")
@@ -864,42 +877,51 @@ func runUnits(ctx context.Context, o *BatchOptions, studies []*batchStudy, units
 
 // runUnit runs one unit and writes its completion marker: the study's
 // folder for a whole study or a merge, the shard's folder for a shard.
+// The marker is written into the run's staging folder (pipeline.IO.Seal)
+// and moved into place with the outputs, after them: a unit killed at any
+// moment (SIGKILL at a scheduler's time limit) leaves either its folder
+// as it was, to be run again, or every output with its marker, never
+// finished outputs without a marker (which a re-run would refuse as a
+// folder it did not make) nor a marker beside half-moved outputs.
 func runUnit(ctx context.Context, o *BatchOptions, st *batchStudy, u unit) error {
 	po := st.opts.Options
 	po.Quiet, po.Version = true, version
 	var read []pipeline.InputFile
-	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f }}
+	var m batch.Marker
+	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f },
+		Seal: func(stage string) error {
+			if u.shard == 0 {
+				sum, err := batch.FileSHA256(filepath.Join(stage, "results.json"))
+				if err != nil {
+					return err
+				}
+				m["results"] = sum
+			}
+			m.SetInputs(markerInputs(read))
+			return batch.WriteMarker(stage, m)
+		}}
 	if u.shard > 0 {
 		po.Out = shardDir(o.Out, st.id, u.shard)
-		if s, _, _ := shardState(o.Out, st, u.shard); s == stateStale {
-			po.Force = true
-		}
-		if err := pipeline.RunShard(ctx, po, pio, u.shard, o.Shards); err != nil {
-			return err
-		}
-		m := batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
-		m.SetInputs(markerInputs(read))
-		return batch.WriteMarker(po.Out, m)
+		// The shard's folder is the batch's own, and a shard replaces
+		// only its own partial file and log: a folder left without a
+		// marker (a shard stopped before it could write one, or made
+		// from other settings) is run into again without --force.
+		po.Force = true
+		m = batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
+		return pipeline.RunShard(ctx, po, pio, u.shard, o.Shards)
 	}
+	m = batch.Marker{"study": st.id, "settings": st.settings}
 	if u.merge {
 		files := make([]string, o.Shards)
 		for k := range files {
 			files[k] = shardDir(o.Out, st.id, k+1)
 		}
 		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: version}
-		if _, err := pipeline.Merge(ctx, mo, pio); err != nil {
-			return err
-		}
-	} else if _, err := pipeline.Run(ctx, po, pio); err != nil {
+		_, err := pipeline.Merge(ctx, mo, pio)
 		return err
 	}
-	sum, err := batch.FileSHA256(filepath.Join(st.dir, "results.json"))
-	if err != nil {
-		return err
-	}
-	m := batch.Marker{"study": st.id, "settings": st.settings, "results": sum}
-	m.SetInputs(markerInputs(read))
-	return batch.WriteMarker(st.dir, m)
+	_, err := pipeline.Run(ctx, po, pio)
+	return err
 }
 
 // writeBatchSummary loads each finished study's results.json (the same

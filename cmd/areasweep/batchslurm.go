@@ -105,7 +105,7 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 		name = name[:64]
 	}
 	p := &slurm.Plan{Name: name, Dir: slurmDir(out), CPUs: o.Slurm.CPUs, TimeLimit: o.Slurm.TimeLimit,
-		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true}
+		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true, CommandMakesOut: true}
 	var need int64
 	for _, st := range studies {
 		if o.Shards <= 1 {
@@ -171,8 +171,13 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 		return err
 	}
 	w := o.IO.Out
-	var staleIDs []string
+	var staleIDs, unreadableIDs []string
 	for _, s := range stale {
+		if s.err != nil {
+			fmt.Fprintf(w, "not submitted: %s: %s\n", s.st.id, oneLine(fault.UserText(s.err)))
+			unreadableIDs = append(unreadableIDs, s.st.id)
+			continue
+		}
 		fmt.Fprintf(w, "not submitted: %s: %s was made %s; add --force to run it again, or %s\n", s.st.id, s.st.dir, s.why.why, s.why.remedy)
 		staleIDs = append(staleIDs, s.st.id)
 	}
@@ -203,30 +208,39 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	}
 	var notDone []string
 	for _, st := range studies {
-		if s, _, _ := st.state(); s == statePending {
+		if s, _, err := st.state(); s == statePending && err == nil {
 			notDone = append(notDone, st.id)
 		}
 	}
 	switch {
-	case len(notDone) > 0:
+	case len(notDone) > 0 || len(unreadableIDs) > 0:
 		also := ""
-		if len(stale) > 0 {
+		if len(staleIDs) > 0 {
 			also = fmt.Sprintf(" (and add --force for %s, made from other settings or inputs)", strings.Join(staleIDs, ", "))
+		}
+		if len(unreadableIDs) > 0 {
+			also += fmt.Sprintf("; not submitted, each with an input file that cannot be read (named above): %s; make the files readable first",
+				strings.Join(unreadableIDs, ", "))
+		}
+		if len(notDone) == 0 {
+			return fmt.Errorf("every submitted task finished; %s", strings.TrimPrefix(also, "; "))
 		}
 		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
 			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs, also)
-	case len(stale) > 0:
+	case len(staleIDs) > 0:
 		return fmt.Errorf("%d of %d studies were made from other settings or inputs and not run again (%s, each named above): add --force to run them again",
-			len(stale), len(studies), strings.Join(staleIDs, ", "))
+			len(staleIDs), len(studies), strings.Join(staleIDs, ", "))
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
 	return nil
 }
 
-// staleStudy is a finished study made from other settings or inputs.
+// staleStudy is a finished study made from other settings or inputs,
+// or (err set) one whose recorded input files cannot be read to tell.
 type staleStudy struct {
 	st  *batchStudy
 	why staleness
+	err error
 }
 
 // slurmPending lists the array indices (from 1) of the tasks to submit:
@@ -251,12 +265,21 @@ func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pendin
 	}
 	for i, t := range p.Tasks {
 		st := byID[t.Study]
-		switch s, why, _ := st.state(); {
+		switch s, why, err := st.state(); {
+		case err != nil:
+			// A recorded input that cannot be read: its task would
+			// fail on the same check, with or without --force (see
+			// forceNote); the study is named and left out.
+			if !isStale[st.id] {
+				stale = append(stale, staleStudy{st: st, err: forceNote(o, err)})
+			}
+			isStale[st.id] = true
+			continue
 		case s == stateDone:
 			continue // a study already merged needs none of its shards again
 		case s == stateStale && !o.Force:
 			if !isStale[st.id] {
-				stale = append(stale, staleStudy{st, why})
+				stale = append(stale, staleStudy{st: st, why: why})
 			}
 			isStale[st.id] = true
 			continue

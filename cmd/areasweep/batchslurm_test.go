@@ -9,7 +9,9 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 	"time"
 )
@@ -187,5 +189,104 @@ func TestBatchOnClusterInputReplaced(t *testing.T) {
 	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm")
 	if code != 0 || !strings.Contains(so, "2 tasks, 0 not finished") || strings.Contains(so, "not submitted") {
 		t.Errorf("after --force: exit %d\nstdout %s\nstderr %s", code, so, se)
+	}
+}
+
+// TestBatchOnClusterKilledTask: on the cluster, a study's task killed
+// with SIGKILL while it runs (scancel --full --signal=KILL, what SLURM
+// sends at the time limit once the grace time after SIGTERM is over)
+// leaves its staging folder and no completion marker; the merge job's
+// summary lists the study as not finished, and the same command run
+// again, without --force and without cleaning by hand, submits its task
+// alone, which removes the killed run's staging folder and finishes.
+func TestBatchOnClusterKilledTask(t *testing.T) {
+	env := slurmtest.Start(t, "../../scripts/slurm-local.sh")
+	dir, _ := inputsStudy(t)
+	table := filepath.Join(dir, "slow.csv")
+	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n" +
+		"id,model,occurrences,region,iterations\n" +
+		"a,m=model.tif,occ.csv,region.geojson,1000000\n" +
+		"b,m=model.tif,occ_b.csv,region.geojson,30\n"
+	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "cluster-out")
+	logs := filepath.Join(out, batchMarker, "slurm", "logs")
+	so, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit")
+	m := regexp.MustCompile(`submitted array job ([0-9]+)`).FindStringSubmatch(so)
+	mj := regexp.MustCompile(`submitted merge job ([0-9]+)`).FindStringSubmatch(so)
+	if code != 0 || m == nil || mj == nil {
+		t.Fatalf("submit: exit %d\nstdout %s\nstderr %s", code, so, se)
+	}
+	scancel := func(args ...string) {
+		c := exec.Command("scancel", args...)
+		c.Env = env
+		if b, err := c.CombinedOutput(); err != nil {
+			t.Errorf("scancel %v: %v %s", args, err, b)
+		}
+	}
+	// SIGKILL to the task's areasweep process, found by its staging
+	// folder's owner record (the one-node cluster runs it here): scancel
+	// --signal=KILL would cancel the job, which sends SIGTERM first, and
+	// areasweep then removes its staging folder itself (exit 143).
+	stage := waitForStage(t, filepath.Join(out, "a"))
+	var rec []byte
+	var pm [][]byte
+	var err error
+	for try := 0; try < 400 && pm == nil; try++ { // the record follows the folder by a moment
+		time.Sleep(5 * time.Millisecond)
+		rec, err = os.ReadFile(filepath.Join(stage, ".areasweep-owner"))
+		pm = regexp.MustCompile(`(?m)^pid\t([0-9]+)$`).FindSubmatch(rec)
+	}
+	if pm == nil {
+		scancel(m[1], mj[1])
+		t.Fatalf("the task's staging folder %s holds no owner record with its pid: %v %q", stage, err, rec)
+	}
+	pid, _ := strconv.Atoi(string(pm[1]))
+	if err := syscall.Kill(pid, syscall.SIGKILL); err != nil {
+		t.Fatalf("kill -9 %d: %v", pid, err)
+	}
+	// The merge job (afterany) runs once the array is over.
+	deadline := time.Now().Add(clusterWait)
+	for {
+		q := exec.Command("squeue", "-h", "-j", m[1]+","+mj[1], "-o", "%i")
+		q.Env = env
+		b, err := q.CombinedOutput()
+		if (err == nil && strings.TrimSpace(string(b)) == "") || strings.Contains(string(b), "Invalid job id") {
+			break // left the queue (or forgotten since)
+		}
+		if time.Now().After(deadline) {
+			scancel(m[1], mj[1])
+			t.Fatalf("the jobs did not end within %v: %s", clusterWait, b)
+		}
+		time.Sleep(500 * time.Millisecond)
+	}
+	if _, err := os.Stat(stage); err != nil {
+		t.Fatalf("the killed task left no staging folder (%v): the kill came too late to test anything\n%s", err, dumpLogs(logs))
+	}
+	rows := readSummary(t, out)
+	if len(rows) != 2 || rows[0]["status"] != "failed" || rows[1]["status"] != "ok" {
+		t.Errorf("the merge job's summary rows %v; want a failed (killed), b ok\n%s", rows, dumpLogs(logs))
+	}
+	// Again, a cheaper a: the same table would take as long; the row's
+	// iterations change its settings, which a study without a marker
+	// does not care about.
+	if err := os.WriteFile(table, []byte(strings.Replace(body, "1000000", "30", 1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	so, se, code = runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit", "--wait")
+	if code != 0 || !strings.Contains(so, "(tasks 1)") {
+		t.Fatalf("again: exit %d, want 0 with a's task alone\nstdout %s\nstderr %s\n%s", code, so, se, dumpLogs(logs))
+	}
+	if _, err := os.Stat(stage); err == nil {
+		t.Errorf("the killed task's staging folder %s kept", stage)
+	}
+	if l := leftovers(out); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+	for _, r := range readSummary(t, out) {
+		if r["status"] != "ok" {
+			t.Errorf("summary row %v after the rerun", r)
+		}
 	}
 }

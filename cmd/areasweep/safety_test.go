@@ -118,40 +118,88 @@ func TestConcurrentRunRefused(t *testing.T) {
 	}
 }
 
-// TestDeadStagingRemoved: staging folders and a lock file left by runs
-// that were killed are removed by the next run of the same --out, and
-// only those: a staging folder of another --out in the same folder stays.
+// TestDeadStagingRemoved: a run killed with SIGKILL (as a scheduler does
+// at a task's time limit, after the grace time) leaves its staging folder
+// and lock file; the same command run again works without cleaning by
+// hand, removes that folder (its owner record names this --out and a
+// dead process) and nothing else: a folder of the same name holding no
+// record (a user's, or an earlier version's staging folder) and a staging
+// folder of another --out stay, and the log says which were left. The
+// same holds inside an existing --out (run --force).
 func TestDeadStagingRemoved(t *testing.T) {
 	s := newSmallStudy(t)
 	parent := t.TempDir()
 	out := filepath.Join(parent, "res")
-	dead := []string{
-		filepath.Join(parent, ".res.areasweep-partial-99999-123"),
-		filepath.Join(parent, ".res.partial-456"), // earlier versions' name
+	kill := func(args []string) string {
+		t.Helper()
+		cmd := exec.Command(areasweepBin, args...)
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		stage := waitForStage(t, out)
+		time.Sleep(100 * time.Millisecond) // inside the scoring
+		cmd.Process.Signal(syscall.SIGKILL)
+		cmd.Wait()
+		if _, err := os.Stat(filepath.Join(stage, ".areasweep-owner")); err != nil {
+			t.Fatalf("the killed run's staging folder %s holds no owner record: %v", stage, err)
+		}
+		return stage
 	}
-	other := filepath.Join(parent, ".other.areasweep-partial-99999-789")
-	for _, d := range append(dead, other) {
+	stage := kill(slowArgs(s, out))
+	keep := []string{
+		filepath.Join(parent, ".res.areasweep-partial-mine"), // a user's folder of that name
+		filepath.Join(parent, ".res.partial-456"),            // an earlier version's name, no record
+		filepath.Join(parent, ".other.areasweep-partial-99999-789"),
+	}
+	for _, d := range keep {
 		os.MkdirAll(filepath.Join(d, "figures"), 0o755)
 		os.WriteFile(filepath.Join(d, "results.json"), []byte("half"), 0o644)
 	}
-	os.WriteFile(filepath.Join(parent, ".res"+lockSuffix), []byte("99999\n"), 0o644)
 	if _, se, code := runBin(t, s.args(out)...); code != 0 {
-		t.Fatalf("exit %d: %s", code, se)
+		t.Fatalf("run after the kill: exit %d: %s", code, se)
 	}
-	for _, d := range dead {
-		if _, err := os.Stat(d); err == nil {
-			t.Errorf("dead staging folder %s kept", d)
+	if _, err := os.Stat(stage); err == nil {
+		t.Errorf("the killed run's staging folder %s kept", stage)
+	}
+	for _, d := range keep {
+		if _, err := os.Stat(filepath.Join(d, "results.json")); err != nil {
+			t.Errorf("%s removed: %v", d, err)
 		}
-	}
-	if _, err := os.Stat(other); err != nil {
-		t.Errorf("staging folder of another --out removed: %v", err)
 	}
 	if _, err := os.Stat(filepath.Join(parent, ".res"+lockSuffix)); err == nil {
 		t.Error("lock file kept after the run")
 	}
 	log, _ := os.ReadFile(filepath.Join(out, "run.log"))
-	if !strings.Contains(string(log), "removed 2 staging folder(s)") {
-		t.Errorf("run.log does not report the removal:\n%s", log)
+	for _, w := range []string{"removed 1 staging folder(s)", "note: left 2 folder(s) named like staging folders", keep[0], keep[1]} {
+		if !strings.Contains(string(log), w) {
+			t.Errorf("run.log lacks %q:\n%s", w, log)
+		}
+	}
+	for _, d := range keep {
+		os.RemoveAll(d) // so that waitForStage finds the next run's
+	}
+	want := treeSums(t, out)
+	stage = kill(slowArgs(s, out, "--force"))
+	if filepath.Dir(stage) != out {
+		t.Fatalf("staging folder %s, want it inside %s", stage, out)
+	}
+	got := treeSums(t, out)
+	for p := range got {
+		if strings.HasPrefix(p, stage+string(filepath.Separator)) {
+			delete(got, p) // its own staging folder, hidden in --out
+		}
+	}
+	if !sameSums(want, got) {
+		t.Error("the killed --force run changed --out")
+	}
+	if _, se, code := runBin(t, s.args(out, "--force")...); code != 0 {
+		t.Fatalf("run --force after the kill: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(stage); err == nil {
+		t.Errorf("the killed run's staging folder %s kept", stage)
+	}
+	if l := leftovers(out); len(l) > 0 {
+		t.Errorf("left in --out: %v", l)
 	}
 }
 

@@ -193,6 +193,25 @@ func (c *Checker) Check(files []InputFile) (InputCheck, error) {
 	return r, nil
 }
 
+// UnreadableError is a recorded input file of a finished study that
+// cannot be examined or read, so that nobody can tell whether the study's
+// results still stand for it. --force does not get past it: GDAL skips a
+// sidecar file it cannot open (a mask, an overview) without a word, so a
+// run made then could silently differ from the one recorded.
+type UnreadableError struct {
+	File InputFile
+	// Err is the system's reason (the path error's cause).
+	Err error
+}
+
+func (e *UnreadableError) Error() string {
+	return fmt.Sprintf("batch: the %s file %s cannot be read to check that it is the one the study was made from (%v); "+
+		"make it readable, or, if the study should no longer use it, move it away (the study then counts as made from other inputs, which --force runs again)",
+		roleText(e.File.Role), e.File.Path, e.Err)
+}
+
+func (e *UnreadableError) Unwrap() error { return e.Err }
+
 // unreadable is the error of a recorded file that cannot be examined or
 // read: its role and path once, the system's reason (not the path again),
 // and what to do.
@@ -201,7 +220,7 @@ func unreadable(f InputFile, err error) error {
 	if errors.As(err, &pe) {
 		err = pe.Err
 	}
-	return fmt.Errorf("batch: the %s file %s cannot be read to check that it is the one the study was made from (%v); make it readable, or remove the study's folder to run it anew", roleText(f.Role), f.Path, err)
+	return &UnreadableError{File: f, Err: err}
 }
 
 // sum is the SHA-256 of the file at path, st its stat taken before. It

@@ -129,7 +129,7 @@ func TestCheckInputs(t *testing.T) {
 func TestUnreadableInput(t *testing.T) {
 	f := InputFile{Role: "model:m", Path: "/data/m.tif.aux.xml"}
 	got := unreadable(f, fmt.Errorf("batch: %w", &fs.PathError{Op: "open", Path: f.Path, Err: fs.ErrPermission})).Error()
-	want := "batch: the model m file /data/m.tif.aux.xml cannot be read to check that it is the one the study was made from (permission denied); make it readable, or remove the study's folder to run it anew"
+	want := "batch: the model m file /data/m.tif.aux.xml cannot be read to check that it is the one the study was made from (permission denied); make it readable, or, if the study should no longer use it, move it away (the study then counts as made from other inputs, which --force runs again)"
 	if got != want {
 		t.Errorf("got  %q\nwant %q", got, want)
 	}

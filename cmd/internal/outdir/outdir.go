@@ -57,6 +57,14 @@ const (
 	stagePrefix    = ".areasweep-partial-"
 	holdPrefix     = ".areasweep-old-"
 	oldStageMarker = ".partial-" // staging folders of earlier versions: .NAME.partial-*
+	// OwnerName is the record inside every staging and set-aside folder
+	// (see owner.go): whose folder it is, for which --out. A folder left
+	// by a dead run is removed only when it holds it.
+	OwnerName = ".areasweep-owner"
+	// recordPrefix begins the names of areasweep's own hidden records
+	// that a run may stage with its outputs (a batch's completion marker,
+	// .areasweep-done): they are moved into --out after every output.
+	recordPrefix = ".areasweep-"
 )
 
 // Dir is a locked output directory and its staging folder. Write the
@@ -73,6 +81,10 @@ type Dir struct {
 	Shard bool
 	// Cleaned is the number of staging folders of dead runs removed.
 	Cleaned int
+	// Kept are the folders named like this --out's staging folders that
+	// were left as they are: they hold no owner record of this --out, or
+	// their run still lives on this machine (see cleanDead).
+	Kept []string
 
 	abs     string
 	parent  string
@@ -251,6 +263,9 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	if err == nil {
 		err = os.Chmod(stage, MkdirPerm())
 	}
+	if err == nil {
+		err = writeOwner(stage, d.abs)
+	}
 	if err != nil {
 		if stage != "" {
 			os.RemoveAll(stage)
@@ -266,7 +281,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 func visible(entries []os.DirEntry) []os.DirEntry {
 	var v []os.DirEntry
 	for _, e := range entries {
-		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) || strings.HasPrefix(e.Name(), stagedPrefix) {
+		if strings.HasPrefix(e.Name(), stagePrefix) || strings.HasPrefix(e.Name(), holdPrefix) || strings.HasPrefix(e.Name(), stagedPrefix) || e.Name() == OwnerName {
 			continue
 		}
 		v = append(v, e)
@@ -414,7 +429,17 @@ func sameFile(f *os.File, path string) bool {
 }
 
 // cleanDead removes staging folders of this --out left by runs that died
-// (killed, power cut). Holding the lock proves their owners are gone.
+// (killed with SIGKILL at a scheduler's time limit, power cut). Holding
+// the lock proves their owners are gone, on a file system whose locks
+// hold across machines (a local disk, NFS, Lustre mounted with flock).
+// A folder is removed only when it is provably areasweep's for this
+// --out: it holds an owner record naming this --out (owner.go) whose
+// process does not live on this machine (a second proof, for a file
+// system whose locks are not kept), or it is empty. Any other folder of
+// such a name (one of the user's, or an earlier version's staging folder
+// without a record) is left as it is and listed in Kept. An owner record
+// left in --out itself (the run died right after moving its stage onto
+// --out) is removed too.
 func (d *Dir) cleanDead(exists bool) {
 	var dead []string
 	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+oldStageMarker+"*")); m != nil {
@@ -425,11 +450,26 @@ func (d *Dir) cleanDead(exists bool) {
 			m, _ := filepath.Glob(filepath.Join(d.abs, p+"*"))
 			dead = append(dead, m...)
 		}
+		if o, err := readOwner(d.abs); err == nil && o.out == d.abs && !o.alive() {
+			os.Remove(filepath.Join(d.abs, OwnerName))
+		}
 	}
 	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+"."+stagePrefix[1:]+"*")); m != nil {
 		dead = append(dead, m...)
 	}
 	for _, p := range dead {
+		if st, err := os.Lstat(p); err != nil || !st.IsDir() {
+			continue // not a folder: not ours
+		}
+		if os.Remove(p) == nil { // empty
+			d.Cleaned++
+			continue
+		}
+		o, err := readOwner(p)
+		if err != nil || o.out != d.abs || o.alive() {
+			d.Kept = append(d.Kept, p)
+			continue
+		}
 		if os.RemoveAll(p) == nil {
 			d.Cleaned++
 		}
@@ -518,6 +558,7 @@ func (d *Dir) Finish() error {
 	if filepath.Dir(d.Stage) == d.parent {
 		if err := os.Rename(d.Stage, d.abs); err == nil {
 			d.created = nil
+			os.Remove(filepath.Join(d.abs, OwnerName))
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
@@ -530,9 +571,13 @@ func (d *Dir) Finish() error {
 	if err != nil {
 		return err
 	}
+	os.Remove(filepath.Join(d.Stage, OwnerName))
 	os.Remove(d.Stage)
 	return nil
 }
+
+// movedHook, set by tests, sees each entry moveEntries moved, in order.
+var movedHook func(name string)
 
 // moveEntries moves each staged entry into --out. Without --force an
 // entry whose name already exists stops everything before any move, and
@@ -544,6 +589,13 @@ func (d *Dir) moveEntries() error {
 	if err != nil {
 		return fmt.Errorf("cannot read the staged results %s: %w", d.Stage, Cause(err))
 	}
+	// The owner record stays in the stage; areasweep's own records (a
+	// batch's completion marker) go last, so that a run killed while it
+	// moves never leaves one beside half-moved outputs.
+	staged = slices.DeleteFunc(staged, func(e os.DirEntry) bool { return e.Name() == OwnerName })
+	sort.SliceStable(staged, func(i, j int) bool {
+		return !strings.HasPrefix(staged[i].Name(), recordPrefix) && strings.HasPrefix(staged[j].Name(), recordPrefix)
+	})
 	names := map[string]bool{}
 	for _, e := range staged {
 		names[e.Name()] = true
@@ -557,6 +609,7 @@ func (d *Dir) moveEntries() error {
 	sort.Strings(clash)
 	if len(clash) > 0 && !d.force {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		os.Remove(filepath.Join(d.Stage, OwnerName)) // a visible folder of results, the user's now
 		if err := os.Rename(d.Stage, keep); err != nil {
 			keep = d.Stage
 		}
@@ -577,13 +630,20 @@ func (d *Dir) moveEntries() error {
 	// during the run: nothing is replaced, as for a clash.
 	if found := d.foreign(replace, d.Stage); len(found) > 0 {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
+		os.Remove(filepath.Join(d.Stage, OwnerName)) // a visible folder of results, the user's now
 		if err := os.Rename(d.Stage, keep); err != nil {
 			keep = d.Stage
 		}
 		return fmt.Errorf("%s, so nothing in it was replaced; the results are in %s", foreignError(d.Out, found), keep)
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
+	if err == nil {
+		err = writeOwner(hold, d.abs)
+	}
 	if err != nil {
+		if hold != "" {
+			os.RemoveAll(hold)
+		}
 		os.RemoveAll(d.Stage)
 		return fmt.Errorf("cannot write in %s: %w", d.Out, Cause(err))
 	}
@@ -615,6 +675,9 @@ func (d *Dir) moveEntries() error {
 			return fmt.Errorf("cannot move %s into %s: %w", n, d.Out, Cause(err))
 		}
 		moved = append(moved, n)
+		if movedHook != nil {
+			movedHook(n)
+		}
 	}
 	os.RemoveAll(hold)
 	return nil
@@ -641,20 +704,36 @@ var activeStaged struct {
 }
 
 // Stage makes a staging folder inside dir, removed by AbortAll. It first
-// removes the staging folders in dir of processes that no longer exist
-// (killed with SIGKILL, power cut); a folder whose process lives, or
-// whose name holds no process id, is left alone.
+// removes the staging folders in dir of processes that no longer run
+// (killed with SIGKILL, power cut), and only those provably so: a folder
+// holding an owner record (owner.go) for dir, written on this machine by
+// a process that no longer runs here. No lock guards dir, so a folder of
+// another machine (dir on shared storage, where another report may be
+// running), one without a record (the user's, an earlier version's, or
+// one made a moment ago whose record is not yet written) or one whose
+// process lives is left alone.
 func Stage(dir string) (*Staged, error) {
+	abs := dir
+	if a, err := filepath.Abs(dir); err == nil {
+		abs = realPath(a)
+	}
+	host, _ := os.Hostname()
 	if m, _ := filepath.Glob(filepath.Join(globEscape(dir), stagedPrefix+"*")); m != nil {
 		for _, p := range m {
-			pid, _, _ := strings.Cut(strings.TrimPrefix(filepath.Base(p), stagedPrefix), "-")
-			if n, err := strconv.Atoi(pid); err == nil && n > 0 && syscall.Kill(n, 0) == syscall.ESRCH {
+			if st, err := os.Lstat(p); err != nil || !st.IsDir() {
+				continue
+			}
+			if o, err := readOwner(p); err == nil && o.out == abs && o.host == host && !o.alive() {
 				os.RemoveAll(p)
 			}
 		}
 	}
 	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
 	if err != nil {
+		return nil, err
+	}
+	if err := writeOwner(p, abs); err != nil {
+		os.RemoveAll(p)
 		return nil, err
 	}
 	s := &Staged{Path: p}

@@ -79,6 +79,9 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 		if b, _ := os.ReadFile(filepath.Join(kept, "results.json")); string(b) != "new" {
 			t.Errorf("results not kept in %s", kept)
 		}
+		if _, err := os.Stat(filepath.Join(kept, OwnerName)); err == nil {
+			t.Errorf("the owner record reached the kept results %s", kept)
+		}
 	})
 	t.Run("force replaces only areasweep's files", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
@@ -253,20 +256,40 @@ func TestStageRemovesDeadStaging(t *testing.T) {
 	if err := cmd.Run(); err != nil {
 		t.Fatal(err)
 	}
-	dead := filepath.Join(dir, stagedPrefix+strconv.Itoa(cmd.Process.Pid)+"-1")
-	live := filepath.Join(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-2")
-	for _, p := range []string{dead, live} {
-		os.MkdirAll(filepath.Join(p, "figures"), 0o755)
+	host, _ := os.Hostname()
+	abs := realPath(dir)
+	rec := func(host string, pid int, start string) string {
+		return "out\t" + abs + "\nhost\t" + host + "\nboot\t" + bootID() + "\npid\t" + strconv.Itoa(pid) + "\nstart\t" + start + "\n"
 	}
-	s, err := Stage(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer s.Abort()
-	if _, err := os.Stat(dead); err == nil {
-		t.Error("the dead process's staging folder is still there")
-	}
-	if _, err := os.Stat(live); err != nil {
-		t.Errorf("the living process's staging folder was removed: %v", err)
+	me := os.Getpid()
+	for _, c := range []struct {
+		name    string
+		record  string // "" for none
+		removed bool
+	}{
+		{"dead process on this machine", rec(host, cmd.Process.Pid, "1"), true},
+		{"living process", rec(host, me, startTime(me)), false},
+		{"process on another machine (dir on shared storage)", rec("node-b", cmd.Process.Pid, "1"), false},
+		{"no record (the user's, or an earlier version's)", "", false},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			p := filepath.Join(dir, stagedPrefix+strconv.Itoa(cmd.Process.Pid)+"-"+strings.ReplaceAll(c.name, " ", "_"))
+			os.MkdirAll(filepath.Join(p, "figures"), 0o755)
+			if c.record != "" {
+				os.WriteFile(filepath.Join(p, OwnerName), []byte(c.record), 0o644)
+			}
+			s, err := Stage(dir)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer s.Abort()
+			if _, err := readOwner(s.Path); err != nil {
+				t.Errorf("the new staging folder holds no owner record: %v", err)
+			}
+			_, err = os.Stat(p)
+			if gone := os.IsNotExist(err); gone != c.removed {
+				t.Errorf("removed %v, want %v", gone, c.removed)
+			}
+		})
 	}
 }

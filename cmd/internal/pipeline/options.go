@@ -66,6 +66,13 @@ type IO struct {
 	// sidecar files, in results.json's order. A batch records them in its
 	// completion marker to tell, on a re-run, whether an input changed.
 	Inputs func([]InputFile)
+	// Seal, when set, is called with the staging folder once every output
+	// is in it, before they are moved into --out; a batch writes its
+	// completion marker there, so that the marker arrives with the
+	// outputs (one rename onto a new --out; moved last into an existing
+	// one) and a run killed at any moment leaves either no marker or
+	// every output beside it.
+	Seal func(stage string) error
 }
 
 // InputFile is one file a run hashed, with its size and modification

@@ -145,6 +145,16 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if s.dir.Cleaned > 0 {
 		s.logf("removed %d staging folder(s) left in or beside %s by earlier runs that were stopped", s.dir.Cleaned, o.Out)
 	}
+	if n := len(s.dir.Kept); n > 0 {
+		// Not a warning of the results (results.json does not depend on
+		// what lies beside --out): the log's note.
+		names := strings.Join(s.dir.Kept[:min(n, 3)], ", ")
+		if n > 3 {
+			names += fmt.Sprintf(" and %d more", n-3)
+		}
+		s.logf("note: left %d folder(s) named like staging folders of %s as they are (%s): they hold no record that a stopped areasweep run of this --out made them, or their run still works on this machine; remove them yourself if they are left-overs",
+			n, o.Out, names)
+	}
 	s.stage = s.dir.Stage
 	if err := s.buildFamily(); err != nil {
 		s.Close()
@@ -195,10 +205,24 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 	if err := outfile.Write(filepath.Join(s.stage, "run.log"), []byte(s.log.String()), 0o666); err != nil {
 		return nil, WriteFailed(err)
 	}
+	if err := s.seal(); err != nil {
+		return nil, err
+	}
 	if err := s.dir.Finish(); err != nil {
 		return nil, err
 	}
 	return s.res, nil
+}
+
+// seal calls IO.Seal on the staging folder, if set.
+func (s *Study) seal() error {
+	if s.io.Seal == nil {
+		return nil
+	}
+	if err := s.io.Seal(s.stage); err != nil {
+		return WriteFailed(err)
+	}
+	return nil
 }
 
 // finishScores writes the family, analyses the scores and writes the

@@ -203,6 +203,9 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 	if err := outfile.Write(filepath.Join(s.stage, ShardLogName(i, n)), []byte(s.log.String()), 0o666); err != nil {
 		return WriteFailed(err)
 	}
+	if err := s.seal(); err != nil {
+		return err
+	}
 	return s.dir.Finish()
 }
 

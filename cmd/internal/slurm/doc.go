@@ -28,7 +28,10 @@
 // half-written outputs. A marker the command wrote itself (areasweep
 // batch's, with the study's settings checksum) is kept, the script adding
 // its own lines to it. A failed task removes the output folder it created
-// when that folder is still empty. The array script skips a task whose marker exists,
+// when that folder is still empty. With Plan.CommandMakesOut the script
+// does not create the folder: the command does (areasweep moves its
+// staged outputs onto it in one rename), so a task killed at any moment
+// leaves no folder or a finished one. The array script skips a task whose marker exists,
 // and Plan.Pending lists the unfinished tasks, so that a resubmission can
 // name only those in --array: tasks are idempotent and restartable.
 //

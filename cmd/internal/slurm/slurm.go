@@ -134,8 +134,15 @@ type Plan struct {
 	// TaskCommand is a shell command run for each task, with the task in
 	// the environment: AREASWEEP_STUDY, AREASWEEP_SHARD (I), AREASWEEP_SHARDS
 	// (N) and AREASWEEP_OUT (the output folder, created before the command
-	// runs). A task counts as finished when it exits with status 0.
+	// runs unless CommandMakesOut). A task counts as finished when it
+	// exits with status 0.
 	TaskCommand string
+	// CommandMakesOut: the task command creates its output folder itself,
+	// so the script does not make it first. areasweep does, moving its
+	// staged outputs (and its marker) onto a new folder in one rename: a
+	// task killed at any moment leaves no folder or a finished one, never
+	// a folder holding part of them.
+	CommandMakesOut bool
 	// MergeCommand is a shell command run once after every task succeeded,
 	// with AREASWEEP_MANIFEST set to the manifest's path. Empty: no merge
 	// job.
@@ -227,7 +234,7 @@ func (p *Plan) Write() (Files, error) {
 		Array:    filepath.Join(p.Dir, "array.sh"),
 		Logs:     filepath.Join(p.Dir, "logs"),
 	}
-	if err := os.MkdirAll(f.Logs, 0o755); err != nil {
+	if err := os.MkdirAll(f.Logs, 0o777); err != nil {
 		return Files{}, fmt.Errorf("slurm: creating the job folder: %w", err)
 	}
 	var m bytes.Buffer
@@ -299,8 +306,16 @@ if [ -f "$out/$marker" ]; then
   exit 0
 fi
 created=0
-[ -d "$out" ] || { mkdir -p "$out"; created=1; }
-export AREASWEEP_STUDY="$study" AREASWEEP_SHARD="${shard%/*}" AREASWEEP_SHARDS="${shard#*/}" AREASWEEP_OUT="$out"
+`)
+	if p.CommandMakesOut {
+		b.WriteString(`# The command makes the output folder itself (with its outputs, in one rename).
+[ -d "$out" ] || created=1
+`)
+	} else {
+		b.WriteString(`[ -d "$out" ] || { mkdir -p "$out"; created=1; }
+`)
+	}
+	b.WriteString(`export AREASWEEP_STUDY="$study" AREASWEEP_SHARD="${shard%/*}" AREASWEEP_SHARDS="${shard#*/}" AREASWEEP_OUT="$out"
 echo "areasweep task $k ($study $shard): started on $(hostname) at $(date -u +%FT%TZ)"
 set +e
 (
