@@ -149,7 +149,7 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 		}
 	}
 	if total > MaxBoundaryPoints {
-		return nil, nil, fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every cell side (%g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster, where that CRS stretches without bound (such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, MaxBoundaryPoints, longest)
+		return nil, nil, fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every cell side (%g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, MaxBoundaryPoints, longest)
 	}
 	var xs, ys []float64
 	for _, p := range s.Grid {
