@@ -22,7 +22,10 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 		return nil
 	}
 	ds = sortedUnique(ds)
-	lats, lons := boundaryLonLat(b.g, base)
+	lats, lons, err := boundaryLonLat(b.g, base)
+	if err != nil {
+		return err
+	}
 	type buf struct {
 		k   int
 		d   float64 // metres, signed
@@ -99,17 +102,55 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	return nil
 }
 
+// MaxBoundaryPoints caps the points of the base region's boundary
+// densified every cell side for the region buffers (boundaryLonLat): 2^25
+// points, 1 GiB of coordinates. A region drawn around the raster has about
+// as many as there are cells along its boundary; more come only from a
+// region reaching where the raster's CRS stretches without bound (the
+// opposite pole of a polar stereographic grid lies at 1e23 m), whose
+// boundary could never be sampled.
+const MaxBoundaryPoints = 1 << 25
+
+// edgeSteps is the number of pieces of at most step into which
+// boundaryLonLat cuts the edge a-b: ceil(|b-a| / step), at least 1 (and 1
+// for an edge with a coordinate that is not finite).
+func edgeSteps(a, b orb.Point, step float64) float64 {
+	n := math.Ceil(math.Hypot(b[0]-a[0], b[1]-a[1]) / step)
+	if !(n >= 1) || math.IsInf(n, 0) {
+		return 1
+	}
+	return n
+}
+
 // boundaryLonLat returns points along the boundary of s every cell side,
 // as WGS84 latitude and longitude. Edges are densified as straight
 // lines in the grid's CRS, the same edges Fill uses to decide which cells
 // are inside, so distances are measured to the boundary that defines the
-// region on the grid. Seam edges (see seamEdge) are left out.
-func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
+// region on the grid. Seam edges (see seamEdge) are left out. A boundary
+// that would take more than MaxBoundaryPoints points is an error.
+func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 	// One cell side: the nearest sample is then within half a side of the
 	// nearest boundary point, so a distance is overestimated by less than
 	// half a cell diagonal, the margin within which a cell may fall either
 	// side of a buffer edge.
 	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
+	total, longest := 0.0, 0.0
+	for _, p := range s.Grid {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				a, b := r[i-1], r[i]
+				if g.Geographic && seamEdge(a, b) {
+					continue
+				}
+				n := edgeSteps(a, b, step)
+				total += n + 1
+				longest = math.Max(longest, n*step)
+			}
+		}
+	}
+	if total > MaxBoundaryPoints {
+		return nil, nil, fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every cell side (%g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, MaxBoundaryPoints, longest)
+	}
 	var xs, ys []float64
 	for _, p := range s.Grid {
 		for _, r := range p {
@@ -118,8 +159,7 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
 				if g.Geographic && seamEdge(a, b) {
 					continue
 				}
-				n := int(math.Ceil(math.Hypot(b[0]-a[0], b[1]-a[1]) / step))
-				n = max(n, 1)
+				n := int(edgeSteps(a, b, step))
 				for k := 0; k < n; k++ {
 					f := float64(k) / float64(n)
 					xs = append(xs, a[0]+f*(b[0]-a[0]))
@@ -146,7 +186,7 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64) {
 			k++
 		}
 	}
-	return lats[:k], lons[:k]
+	return lats[:k], lons[:k], nil
 }
 
 // seamEdge reports whether the edge a-b runs along the antimeridian or a
