@@ -30,7 +30,10 @@ const MaxPreviewSide = 4096
 //     Boyce index in [-1,1], partial ROC ratios and their intervals in
 //     [0,2] and their SDs in [0,2], AUC resample SDs in [0,1], E in
 //     (0,1), successes lie in [0, n];
-//   - points have a known role and status and finite coordinates;
+//   - paired records have a known kind and method, counts >= 0 (at most
+//     resamples not formed), finite values and a non-negative SE;
+//   - points have a known role and status, finite coordinates and a cell
+//     of the grid (row and col -1 for a point outside the raster);
 //   - the preview's size and encoded lengths match.
 func Validate(r *Results) error {
 	return validate("results.json", r)
@@ -122,6 +125,26 @@ func validate(file string, r *Results) error {
 		at := fmt.Sprintf("paired[%d] (%s, model %s, extent %s)", i, p.Metric, p.Model, p.Extent)
 		ref(at, p.Model, p.Extent)
 		ref(at+" other side", p.OtherModel, p.OtherExtent)
+		switch p.Kind {
+		case PairedKindExtent, PairedKindModel, PairedKindNull:
+		default:
+			v.fail(at+".kind", "%q is not %s, %s or %s", p.Kind, PairedKindExtent, PairedKindModel, PairedKindNull)
+		}
+		switch p.Method {
+		case "placements", "paired_resamples":
+		default:
+			v.fail(at+".method", "%q is not placements or paired_resamples", p.Method)
+		}
+		v.nonNegInt(at+".common_points", int64(p.CommonPoints))
+		v.nonNegInt(at+".resamples", int64(p.Resamples))
+		v.between(at+".resamples_not_formed", float64(p.NotFormed), 0, float64(max(p.Resamples, 0)))
+		for _, x := range []struct {
+			name string
+			v    float64
+		}{{"a", p.A}, {"b", p.B}, {"diff", p.Diff}, {"ci_low", p.Low}, {"ci_high", p.High}, {"test_set_shift", p.TestSetShift}} {
+			v.finite(at+"."+x.name, x.v)
+		}
+		v.nonNeg(at+".se", p.SE)
 	}
 	for i, g := range r.Rings {
 		at := fmt.Sprintf("rings[%d] (model %s, %s to %s)", i, g.Model, g.Inner, g.Outer)
@@ -167,6 +190,15 @@ func validate(file string, r *Results) error {
 		}
 		v.finite(at+".lon", p.Lon)
 		v.finite(at+".lat", p.Lat)
+		// A point outside the raster has no cell (-1, -1); any other lies
+		// on one.
+		if p.Status == vocab.PointOutsideRaster {
+			if p.Row != -1 || p.Col != -1 {
+				v.fail(at, "row %d, col %d: a point outside the raster has row -1 and col -1", p.Row, p.Col)
+			}
+		} else if p.Row < 0 || p.Row >= r.Grid.Height || p.Col < 0 || p.Col >= r.Grid.Width {
+			v.fail(at, "row %d, col %d is not a cell of the %dx%d grid", p.Row, p.Col, r.Grid.Width, r.Grid.Height)
+		}
 		v.nonNeg(at+".nearest_train_km", p.NearestTrainKm)
 	}
 	if r.Preview != nil {

@@ -70,6 +70,24 @@ func TestValidateRefuses(t *testing.T) {
 		{"partial ROC ratio above 2", func(r *Results) { firstScored(r).PartialROC[0].Ratio = 1.7e308 }, "partial_roc[0].ratio: 1.7e+308 is outside [0, 2]"},
 		{"partial ROC interval above 2", func(r *Results) { firstScored(r).PartialROC[0].CIHigh = 2.5 }, "ci_high: 2.5 is outside [0, 2]"},
 		{"AUC resample SD above 1", func(r *Results) { firstScored(r).AUCBootSD = 3 }, "auc_boot_sd: 3 is outside [0, 1]"},
+		// Accepted before; found by editing results.json at random.
+		{"paired negative SE", func(r *Results) { r.Paired[0].SE = -0.1 }, ".se: -0.1"},
+		{"paired negative resamples", func(r *Results) { r.Paired[0].Resamples = -4 }, ".resamples: -4"},
+		{"paired more not formed than drawn", func(r *Results) { p := &r.Paired[0]; p.NotFormed = p.Resamples + 1 }, ".resamples_not_formed"},
+		{"paired unknown method", func(r *Results) { r.Paired[0].Method = "guess" }, `.method: "guess" is not placements or paired_resamples`},
+		{"paired unknown kind", func(r *Results) { r.Paired[0].Kind = "other" }, `.kind: "other" is not extent`},
+		{"paired infinite difference", func(r *Results) { r.Paired[0].Diff = math.Inf(1) }, ".diff"},
+		{"scored point off the grid", func(r *Results) {
+			for i := range r.Points {
+				if r.Points[i].Status == "scored" {
+					r.Points[i].Col = -1
+					return
+				}
+			}
+		}, "col -1 is not a cell of the"},
+		{"point outside with a cell", func(r *Results) {
+			r.Points[0].Status, r.Points[0].Row, r.Points[0].Col = "outside_raster", 2, 3
+		}, "a point outside the raster has row -1 and col -1"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
