@@ -366,6 +366,16 @@ func TestConstantModelAndThinningSummary(t *testing.T) {
 	if !strings.Contains(se, "model m has the same value (0.5) on every cell") {
 		t.Errorf("no warning about the constant model:\n%s", se)
 	}
+	// The warning says what the run does: it did not score the model (it
+	// said "its AUC is 0.5" while no AUC was reported).
+	if !strings.Contains(se, "so it is not scored on any extent") {
+		t.Errorf("the warning does not say the model is not scored:\n%s", se)
+	}
+	for _, sc := range loadResults(t, out).Scores {
+		if sc.Model == "m" && sc.Scored {
+			t.Errorf("the constant model is scored on %s", sc.Extent)
+		}
+	}
 	if n := strings.Count(se, "thinned:"); n != 1 || !strings.Contains(se, "and 110 more") {
 		t.Errorf("%d thinned lines (want one summary):\n%s", n, se)
 	}

@@ -61,7 +61,7 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 			p.Model.Name, p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
-		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so its AUC is 0.5 and its thresholds say nothing: check that this is the file you meant", p.Model.Name, st.Min))
+		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so it is not scored on any extent (every cell ties with every test point): check that this is the file you meant", p.Model.Name, st.Min))
 	} else if r, ok := p.src.(*pass.Raster); ok && st.Area > 0 && noDataMarker(st.Min) {
 		declared := "declares no nodata value"
 		if nd, has := r.NoData(); has {
