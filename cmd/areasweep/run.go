@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -194,9 +195,23 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 			return err
 		}
 		st.Apply(&o.Values, f.Changed)
+		if err := o.validate(); err != nil {
+			// A setting the message names by its flag, given in the study
+			// file and not on the command line: say where it came from.
+			if m := flagNameRE.FindStringSubmatch(err.Error()); m != nil && !f.Changed(m[1]) {
+				if _, inFile := (*st)[m[1]]; inFile {
+					return fmt.Errorf("%w (the value comes from the study file %s, key %s)", err, o.Study, m[1])
+				}
+			}
+			return err
+		}
+		return nil
 	}
 	return o.validate()
 }
+
+// flagNameRE finds the first flag a validation message names.
+var flagNameRE = regexp.MustCompile(`--([a-z][a-z-]*)`)
 
 // validate checks the settings that need no file access.
 func (o *RunOptions) validate() error {
