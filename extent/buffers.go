@@ -135,40 +135,24 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 	// side of a buffer edge.
 	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
 	total, longest := 0.0, 0.0
-	for _, p := range s.Grid {
-		for _, r := range p {
-			for i := 1; i < len(r); i++ {
-				a, b := r[i-1], r[i]
-				if g.Geographic && seamEdge(a, b) {
-					continue
-				}
-				n := edgeSteps(a, b, step)
-				total += n + 1
-				longest = math.Max(longest, n*step)
-			}
-		}
-	}
+	boundaryEdges(g, s, func(a, b orb.Point) {
+		n := edgeSteps(a, b, step)
+		total += n + 1
+		longest = math.Max(longest, n*step)
+	})
 	if total > MaxBoundaryPoints {
 		return nil, nil, fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every cell side (%g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, MaxBoundaryPoints, longest)
 	}
-	var xs, ys []float64
-	for _, p := range s.Grid {
-		for _, r := range p {
-			for i := 1; i < len(r); i++ {
-				a, b := r[i-1], r[i]
-				if g.Geographic && seamEdge(a, b) {
-					continue
-				}
-				n := int(edgeSteps(a, b, step))
-				for k := 0; k < n; k++ {
-					f := float64(k) / float64(n)
-					xs = append(xs, a[0]+f*(b[0]-a[0]))
-					ys = append(ys, a[1]+f*(b[1]-a[1]))
-				}
-				xs, ys = append(xs, b[0]), append(ys, b[1])
-			}
+	xs, ys := make([]float64, 0, int(total)), make([]float64, 0, int(total))
+	boundaryEdges(g, s, func(a, b orb.Point) {
+		n := int(edgeSteps(a, b, step))
+		for k := 0; k < n; k++ {
+			f := float64(k) / float64(n)
+			xs = append(xs, a[0]+f*(b[0]-a[0]))
+			ys = append(ys, a[1]+f*(b[1]-a[1]))
 		}
-	}
+		xs, ys = append(xs, b[0]), append(ys, b[1])
+	})
 	lons = make([]float64, len(xs))
 	lats = make([]float64, len(ys))
 	g.ToLonLat(xs, ys, lons, lats)
@@ -187,6 +171,20 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 		}
 	}
 	return lats[:k], lons[:k], nil
+}
+
+// boundaryEdges calls f with each edge a-b of the rings of s in order,
+// leaving out the seam edges of a latitude-longitude grid (seamEdge).
+func boundaryEdges(g *Grid, s Shape, f func(a, b orb.Point)) {
+	for _, p := range s.Grid {
+		for _, r := range p {
+			for i := 1; i < len(r); i++ {
+				if a, b := r[i-1], r[i]; !g.Geographic || !seamEdge(a, b) {
+					f(a, b)
+				}
+			}
+		}
+	}
 }
 
 // seamEdge reports whether the edge a-b runs along the antimeridian or a
