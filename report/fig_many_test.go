@@ -221,15 +221,7 @@ func textBox(tx svgText) vg.Rectangle {
 func TestManyExtentFiguresSVG(t *testing.T) {
 	for _, n := range []int{120, 256} {
 		r := manyExtents(t, n)
-		f, ok := mapFigure(r)
-		if !ok {
-			t.Fatal("no map figure")
-		}
-		svg, err := render(f, "svg")
-		if err != nil {
-			t.Fatal(err)
-		}
-		checkTexts(t, fmt.Sprintf("maps of %d extents", n), svg)
+		f, svg := checkedMapSVG(t, r, fmt.Sprintf("maps of %d extents", n))
 		texts, _ := parseSVG(t, svg)
 		count := map[string]int{}
 		for _, tx := range texts {
@@ -660,15 +652,7 @@ func TestMapKeyInFreeCell(t *testing.T) {
 	if n := len(mapGroups(r)); n != 3 {
 		t.Fatalf("%d panels, want 3", n)
 	}
-	f, ok := mapFigure(r)
-	if !ok {
-		t.Fatal("no map figure")
-	}
-	svg, err := render(f, "svg")
-	if err != nil {
-		t.Fatal(err)
-	}
-	checkTexts(t, "maps of 60 extents", svg)
+	f, svg := checkedMapSVG(t, r, "maps of 60 extents")
 	texts, _ := parseSVG(t, svg)
 	suit := "suitability, model " + r.Models[0].Name
 	lowest, keyLowest, keys := math.Inf(1), math.Inf(1), 0
@@ -685,4 +669,21 @@ func TestMapKeyInFreeCell(t *testing.T) {
 	if keys < 3 || !(keyLowest > lowest) {
 		t.Errorf("%d key texts, the lowest at y %.1f, the figure's lowest text at %.1f: key not in the free cell", keys, keyLowest, lowest)
 	}
+}
+
+// checkedMapSVG returns the map figure of r and its SVG, whose texts it
+// checks (checkTexts, naming the figure what): every text inside the
+// canvas and none overlapping another.
+func checkedMapSVG(t *testing.T, r *Results, what string) (figure, []byte) {
+	t.Helper()
+	f, ok := mapFigure(r)
+	if !ok {
+		t.Fatal("no map figure")
+	}
+	svg, err := render(f, "svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkTexts(t, what, svg)
+	return f, svg
 }
