@@ -400,7 +400,8 @@ func (st *batchStudy) state() (studyState, staleness, error) {
 
 // markerState reads the marker in dir, the folder of the study or of one
 // of its shards: none, pending; another settings checksum (the table row
-// changed), stale; an input file recorded in it removed or holding other
+// changed), stale; no settings checksum at all (an empty or damaged
+// marker), stale too; an input file recorded in it removed or holding other
 // content than when the study finished (batch.Checker: only files whose
 // size or time changed are hashed), stale too; else done. A marker
 // without input lines (an older areasweep's) is done when its settings
@@ -414,7 +415,12 @@ func (st *batchStudy) markerState(dir string) (studyState, staleness, error) {
 		return statePending, staleness{}, err
 	case m == nil:
 		return statePending, staleness{}, nil
-	case m["settings"] != "" && m["settings"] != st.settings:
+	case m["settings"] == "":
+		// Every marker areasweep writes (batch's, a shard task's, an
+		// older version's) records the settings checksum: one without it
+		// is empty or damaged and vouches for nothing in the folder.
+		return stateStale, staleness{"by a run its completion marker " + batch.MarkerPath(dir) + " does not tell (the marker is empty or damaged: it records no settings)", "remove the folder"}, nil
+	case m["settings"] != st.settings:
 		return stateStale, staleness{"from other settings (the table row changed since it finished)", "remove the folder"}, nil
 	}
 	files, err := m.Inputs()
