@@ -150,6 +150,29 @@ func floatListVar(fs *pflag.FlagSet, p *[]float64, name string, value []float64,
 	fs.Var(&floatList{p: p, name: name}, name, usage)
 }
 
+// wholeFlag is an int flag that takes a whole number as the study file
+// takes the same key (inputs.ParseWhole: "1e3" and "1000.0" too). Its
+// errors are strconv.ParseInt's, worded by the root's flag error hook.
+type wholeFlag struct{ p *int }
+
+func (w wholeFlag) String() string {
+	if w.p == nil {
+		return "0"
+	}
+	return strconv.Itoa(*w.p)
+}
+
+func (w wholeFlag) Set(s string) error {
+	v, err := inputs.ParseWhole(s)
+	if err != nil {
+		return err
+	}
+	*w.p = v
+	return nil
+}
+
+func (w wholeFlag) Type() string { return "int" }
+
 // bindRunFlags binds the flags of run.
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) }
 
@@ -169,7 +192,7 @@ func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
 		case *bool:
 			f.BoolVar(p, s.Name, *p, s.Usage)
 		case *int:
-			f.IntVar(p, s.Name, *p, s.Usage)
+			f.Var(wholeFlag{p}, s.Name, s.Usage)
 		case *uint64:
 			f.Uint64Var(p, s.Name, *p, s.Usage)
 		case *float64:
@@ -251,10 +274,22 @@ func (o *RunOptions) validate() error {
 	if _, ok := seen[report.DistanceNullName]; ok && !o.NoDistanceNull {
 		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
 	}
+	// Extra layers' names become extent names (user_NAME), compared
+	// ignoring case for the same reason: "Lake" and "lake" could not be
+	// told apart in a case-insensitive table or file system.
+	extras := map[string]string{}
 	for _, m := range o.Extra {
-		if _, _, err := inputs.ParseNamedPath(m); err != nil {
+		name, _, err := inputs.ParseNamedPath(m)
+		if err != nil {
 			return fmt.Errorf("--extra %q: %w", m, err)
 		}
+		if prev, ok := extras[strings.ToLower(name)]; ok {
+			if prev == name {
+				return fmt.Errorf("--extra: name %q is given twice; give each extra layer its own name", name)
+			}
+			return fmt.Errorf("--extra: names %q and %q differ only in case, which output tables do not tell apart; give each extra layer its own name", prev, name)
+		}
+		extras[strings.ToLower(name)] = name
 	}
 	if o.Occurrences == "" {
 		return fmt.Errorf("no occurrences given: add --occurrences FILE.csv")

@@ -54,6 +54,20 @@ func TestRunFlags(t *testing.T) {
 		{"model names differing in case", []string{"--model", "A=a.tif", "--model", "a=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differ only in case"},
 		{"null named like a model but for case", []string{"--model", "m=a.tif", "--null", "M=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differs only in case"},
 		{"reserved null name", []string{"--model", "distance_null=a.tif", "--occurrences", "o", "--region", "r"}, nil, "kept for the distance-only null"},
+		{"extra names differing in case", []string{"--model", "m=a.tif", "--extra", "Lake=a.gpkg", "--extra", "lake=b.gpkg", "--occurrences", "o", "--region", "r"}, nil, `names "Lake" and "lake" differ only in case`},
+		{"extra name twice", []string{"--model", "m=a.tif", "--extra", "lake=a.gpkg", "--extra", "lake=b.gpkg", "--occurrences", "o", "--region", "r"}, nil, `name "lake" is given twice`},
+		// A whole number in exponent or decimal form, as the study file
+		// takes it (inputs.ParseWhole).
+		{"iterations in exponent form", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--iterations", "1e3", "--ecoregion-min-points", "4.0"}, func(t *testing.T, o *RunOptions) {
+			if o.Iterations != 1000 || o.EcoregionMinPoints != 4 {
+				t.Errorf("--iterations 1e3 gave %d, --ecoregion-min-points 4.0 gave %d", o.Iterations, o.EcoregionMinPoints)
+			}
+		}, ""},
+		{"study file in exponent form", []string{"--study", write(t, dir, "exp.yaml", "model:\n  - a=a.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 2e2\n")}, func(t *testing.T, o *RunOptions) {
+			if o.Iterations != 200 {
+				t.Errorf("iterations: 2e2 gave %d", o.Iterations)
+			}
+		}, ""},
 		{"unknown study key", []string{"--study", write(t, dir, "bad.yaml", "modle: x\n")}, nil, "modle"},
 	}
 	for _, c := range cases {

@@ -353,14 +353,46 @@ func intValue(key string, v *yaml.Node) (*int, error) {
 		}
 	case "!!float":
 		var f float64
-		if err := n.Decode(&f); err != nil || f != math.Trunc(f) || math.Abs(f) > 1<<53 {
+		err := n.Decode(&f)
+		w, ok := wholeFloat(f)
+		if err != nil || !ok {
 			return nil, badValue("%q is not a whole number; write for example\n    %s: 1000", n.Value, key)
 		}
-		out = int(f)
+		out = w
 	default:
 		return nil, badValue("%q is not a whole number%s; write for example\n    %s: 1000", n.Value, quotedHint(n), key)
 	}
 	return &out, nil
+}
+
+// wholeFloat returns f as an int when it is a whole number that a
+// float64 holds exactly (|f| <= 2^53): "1e3" or "1000.0" in a study file
+// or on the command line (ParseWhole) means 1000.
+func wholeFloat(f float64) (int, bool) {
+	if f != math.Trunc(f) || !(math.Abs(f) <= 1<<53) {
+		return 0, false
+	}
+	return int(f), true
+}
+
+// ParseWhole parses a whole-number flag value as the study file reads the
+// same key: a Go integer literal (strconv.ParseInt, base prefixes and
+// underscores allowed, as pflag's int flags take them), or a decimal or
+// exponent form of a whole number ("1e3", "1000.0"). It returns
+// strconv.ParseInt's error (invalid syntax, or value out of range for a
+// whole number beyond 2^53) for anything else.
+func ParseWhole(s string) (int, error) {
+	v, err := strconv.ParseInt(s, 0, strconv.IntSize)
+	if err == nil {
+		return int(v), nil
+	}
+	if f, ferr := strconv.ParseFloat(s, 64); ferr == nil && !math.IsInf(f, 0) && f == math.Trunc(f) {
+		if w, ok := wholeFloat(f); ok {
+			return w, nil
+		}
+		return 0, &strconv.NumError{Func: "ParseInt", Num: s, Err: strconv.ErrRange}
+	}
+	return 0, err
 }
 
 func uintValue(key string, v *yaml.Node) (*uint64, error) {

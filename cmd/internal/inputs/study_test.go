@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -542,4 +543,57 @@ func FuzzParseStudy(f *testing.F) {
 			t.Fatal("nil study without error")
 		}
 	})
+}
+
+// TestParseWhole: a whole-number flag takes what the study file takes for
+// the same key (Go integer literals, and whole numbers in decimal or
+// exponent form, YAML's float forms); anything else keeps
+// strconv.ParseInt's error, which the command words for the user.
+func TestParseWhole(t *testing.T) {
+	cases := []struct {
+		in   string
+		want int
+		err  error // strconv.ErrSyntax or ErrRange; nil: parsed
+	}{
+		{"1000", 1000, nil},
+		{"1e3", 1000, nil},
+		{"1000.0", 1000, nil},
+		{"-2e0", -2, nil},
+		{"0x10", 16, nil},
+		{"1_000", 1000, nil},
+		{"9007199254740992", 1 << 53, nil},
+		{"9.007199254740992e15", 1 << 53, nil},
+		{"1.5", 0, strconv.ErrSyntax},
+		{"1e-3", 0, strconv.ErrSyntax},
+		{"abc", 0, strconv.ErrSyntax},
+		{"NaN", 0, strconv.ErrSyntax},
+		{"Inf", 0, strconv.ErrSyntax},
+		{"", 0, strconv.ErrSyntax},
+		{"1e300", 0, strconv.ErrRange},
+		{"99999999999999999999", 0, strconv.ErrRange},
+	}
+	for _, c := range cases {
+		got, err := ParseWhole(c.in)
+		if c.err == nil {
+			if err != nil || got != c.want {
+				t.Errorf("ParseWhole(%q) = %d, %v; want %d", c.in, got, err, c.want)
+			}
+			continue
+		}
+		var ne *strconv.NumError
+		if !errors.As(err, &ne) || ne.Func != "ParseInt" || !errors.Is(err, c.err) {
+			t.Errorf("ParseWhole(%q) = %d, %v; want strconv.ParseInt's %v", c.in, got, err, c.err)
+		}
+	}
+	// The study file reads the same forms as the same numbers.
+	for _, c := range cases[:4] {
+		st, err := ParseStudy(strings.NewReader("iterations: "+c.in+"\n"), "s.yaml", ".")
+		if err != nil {
+			t.Errorf("study iterations: %s: %v", c.in, err)
+			continue
+		}
+		if got, ok := (*st)["iterations"].(int); !ok || got != c.want {
+			t.Errorf("study iterations: %s gave %v; want %d", c.in, (*st)["iterations"], c.want)
+		}
+	}
 }
