@@ -85,82 +85,152 @@ func ReadUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 
 func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	Register()
-	var warns []string
+	src, warns, err := openPolygons(path, field)
+	if err != nil {
+		return nil, warns, err
+	}
+	defer src.close()
+	byID, order, err := src.unionByID(&warns)
+	if err != nil {
+		return nil, warns, err
+	}
+	units, err := src.onGrid(byID, order, g)
+	if err != nil {
+		return nil, warns, err
+	}
+	return units, warns, nil
+}
+
+// polygonSource is the polygon layer readUnits reads, open and checked:
+// its dataset (a copy in memory once flattened or repaired), the layer,
+// its CRS, the id field (the layer's spelling; "" for none) and what
+// close releases, last opened first.
+type polygonSource struct {
+	path   string
+	ds     *godal.Dataset
+	layer  godal.Layer
+	lsr    *godal.SpatialRef
+	field  string
+	closes []func()
+}
+
+func (s *polygonSource) close() {
+	for i := len(s.closes) - 1; i >= 0; i-- {
+		s.closes[i]()
+	}
+	s.closes = nil
+}
+
+// openPolygons opens the vector file at path and readies its polygon
+// layer (see chooseLayer): a layer without geometry or without a CRS is
+// refused; Z, M and curved geometries are made plane and linear, the id
+// field is resolved and checked for empty ids, and invalid features are
+// repaired (GDAL's MakeValid), each with a warning.
+func openPolygons(path, field string) (*polygonSource, []string, error) {
 	ds, err := godal.Open(path, godal.VectorOnly())
 	if err != nil {
-		hint := ""
-		if strings.HasSuffix(strings.ToLower(path), ".zip") {
-			hint = "; a zipped shapefile must be unzipped first: give the path of its .shp"
-		} else if r, rerr := OpenRaster(path); rerr == nil {
-			r.Close()
-			return nil, nil, fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
-		}
-		cause := gdalmsg.Cause(err.Error())
-		if hint == "" {
-			hint = vectorAdvice(cause)
-		}
-		if strings.Contains(cause, "Non closed ring") {
-			// GDAL's own advice names no option and would accept the
-			// broken ring: say what is wrong instead.
-			cause = "a polygon's ring does not end at its first point"
-		}
-		if cause == "crs not found" {
-			// A GeoJSON "crs" member naming a CRS PROJ does not know.
-			cause = "the CRS its \"crs\" member names is not one PROJ knows"
-			hint = "; correct the \"crs\" member, or remove it if the coordinates are longitudes and latitudes in WGS84 (GeoJSON's own CRS)"
-		}
-		if strings.Contains(cause, "SHAPE_RESTORE_SHX") {
-			// GDAL's advice is a configuration option of its own.
-			cause = "the shapefile's index " + strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)) + ".shx is not beside it"
-		}
-		return nil, nil, fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, cause, hint)
+		return nil, nil, openVectorError(path, err)
 	}
-	defer ds.Close()
-	layers := ds.Layers()
-	if len(layers) == 0 {
-		return nil, nil, fmt.Errorf("extent: %s has no layer", path)
+	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
+	warns, err := s.ready(field)
+	if err != nil {
+		s.close()
+		return nil, warns, err
 	}
-	// Of several layers, the first whose declared geometry type is an
-	// area (a GeoPackage often holds the points or lines of the same
-	// study beside its polygons), else the first.
+	return s, warns, nil
+}
+
+// openVectorError explains why GDAL could not open path as a vector file,
+// in our words and with what to do.
+func openVectorError(path string, err error) error {
+	hint := ""
+	if strings.HasSuffix(strings.ToLower(path), ".zip") {
+		hint = "; a zipped shapefile must be unzipped first: give the path of its .shp"
+	} else if r, rerr := OpenRaster(path); rerr == nil {
+		r.Close()
+		return fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
+	}
+	cause := gdalmsg.Cause(err.Error())
+	if hint == "" {
+		hint = vectorAdvice(cause)
+	}
+	if strings.Contains(cause, "Non closed ring") {
+		// GDAL's own advice names no option and would accept the
+		// broken ring: say what is wrong instead.
+		cause = "a polygon's ring does not end at its first point"
+	}
+	if cause == "crs not found" {
+		// A GeoJSON "crs" member naming a CRS PROJ does not know.
+		cause = "the CRS its \"crs\" member names is not one PROJ knows"
+		hint = "; correct the \"crs\" member, or remove it if the coordinates are longitudes and latitudes in WGS84 (GeoJSON's own CRS)"
+	}
+	if strings.Contains(cause, "SHAPE_RESTORE_SHX") {
+		// GDAL's advice is a configuration option of its own.
+		cause = "the shapefile's index " + strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)) + ".shx is not beside it"
+	}
+	return fmt.Errorf("extent: %s is not a vector file GDAL can read (%s)%s", path, cause, hint)
+}
+
+// chooseLayer returns the layer to read of several: the first whose
+// declared geometry type is an area (a GeoPackage often holds the points
+// or lines of the same study beside its polygons), else the first, with
+// a warning naming the layers; of one, that one without a warning.
+func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 	layer := layers[0]
-	if len(layers) > 1 {
-		which := "the first"
-		for i, l := range layers {
-			if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
-				if i > 0 {
-					which = "the first of polygons"
-				}
-				layer = l
-				break
+	if len(layers) == 1 {
+		return layer, ""
+	}
+	which := "the first"
+	for i, l := range layers {
+		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
+			if i > 0 {
+				which = "the first of polygons"
 			}
+			layer = l
+			break
 		}
-		var names []string
-		for i, l := range layers {
-			if i == 8 {
-				names = append(names, fmt.Sprintf("and %d more", len(layers)-8))
-				break
-			}
-			names = append(names, l.Name())
+	}
+	var names []string
+	for i, l := range layers {
+		if i == 8 {
+			names = append(names, fmt.Sprintf("and %d more", len(layers)-8))
+			break
 		}
-		warns = append(warns, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
-			path, len(layers), strings.Join(names, ", "), which, layer.Name(), path))
+		names = append(names, l.Name())
+	}
+	return layer, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
+		path, len(layers), strings.Join(names, ", "), which, layer.Name(), path)
+}
+
+// ready picks the layer and checks and prepares it (see openPolygons).
+func (s *polygonSource) ready(field string) ([]string, error) {
+	var warns []string
+	path := s.path
+	layers := s.ds.Layers()
+	if len(layers) == 0 {
+		return nil, fmt.Errorf("extent: %s has no layer", path)
+	}
+	layer, warn := chooseLayer(path, layers)
+	if warn != "" {
+		warns = append(warns, warn)
 	}
 	if layer.Type() == godal.GTNone {
 		// A table without geometry (a CSV of points, say): it has no
 		// polygons and no CRS, and the CRS refusal would mislead.
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no geometry (a table, not polygons); give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path, layer.Name())
+		return warns, fmt.Errorf("extent: %s layer %q has no geometry (a table, not polygons); give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path, layer.Name())
 	}
 	lsr := layer.SpatialRef()
 	if lsr == nil {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
+		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	}
 	if w, err := lsr.WKT(); err != nil || w == "" {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
+		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	} else if undefinedCRS(w) {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
+		return warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
-	defer lsr.Close()
+	s.lsr = lsr
+	s.closes = append(s.closes, func() { lsr.Close() })
+	ds := s.ds
 	// Z or M coordinates (a KML with altitudes, a PolygonZ shapefile) and
 	// curved geometries (an ArcGIS export's CurvePolygon or MultiSurface)
 	// are read as their plane, linear equivalent: a copy of the layer in
@@ -168,18 +238,18 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if needsFlattening(layer) {
 		flat, err := ds.VectorTranslate("", []string{"-dim", "XY", "-nlt", "CONVERT_TO_LINEAR", layer.Name()}, godal.Memory)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s layer %q: its 3D or curved geometries could not be made plane and linear (%s); save the layer as 2D polygons in a GIS", path, layer.Name(), gdalmsg.Cause(err.Error()))
+			return warns, fmt.Errorf("extent: %s layer %q: its 3D or curved geometries could not be made plane and linear (%s); save the layer as 2D polygons in a GIS", path, layer.Name(), gdalmsg.Cause(err.Error()))
 		}
-		defer flat.Close()
+		s.closes = append(s.closes, func() { flat.Close() })
 		ds, layer = flat, flat.Layers()[0]
 	}
 	if err := checkFeatureTypes(path, layer); err != nil {
-		return nil, warns, err
+		return warns, err
 	}
 	if field != "" {
 		field = fieldName(layer, field)
 		if err := checkNullIDs(ds, path, layer, field); err != nil {
-			return nil, warns, err
+			return warns, err
 		}
 	}
 	// Invalid features (self-intersections, bad rings) are repaired with
@@ -188,105 +258,42 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if bad, why := invalidFeatures(layer); len(bad) > 0 {
 		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
+			return warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
 		}
-		defer fixed.Close()
+		s.closes = append(s.closes, func() { fixed.Close() })
 		layer = fixed.Layers()[0]
 		warns = append(warns, repairWarning(path, bad, why))
 	}
+	s.ds, s.layer, s.field = ds, layer, field
+	return warns, nil
+}
+
+// unionByID reads every feature of the layer (see feature), the
+// geometries of each id unioned in feature order, and returns them with
+// the ids in the order they first appear. Features without geometry are
+// skipped with one warning added to warns.
+func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, []string, error) {
 	byID := map[string]*godal.Geometry{}
 	var order []string
 	var empty []int // features without geometry, skipped
-	layer.ResetReading()
-	n := 0
-	for {
-		f := layer.NextFeature()
+	s.layer.ResetReading()
+	for fid := 1; ; fid++ {
+		f := s.layer.NextFeature()
 		if f == nil {
 			break
 		}
-		n++
-		fid := n
-		geom := f.Geometry()
-		id := ""
-		if field != "" {
-			fields := f.Fields()
-			v, ok := fields[field]
-			if !ok {
-				names := make([]string, 0, len(fields))
-				for k := range fields {
-					names = append(names, k)
-				}
-				sort.Strings(names)
-				f.Close()
-				if len(names) == 0 {
-					if dbf := missingDBF(path); dbf != "" {
-						return nil, warns, fmt.Errorf("extent: %s has no field %q: its attribute table %s is not beside it; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the .dbf beside it, or export the layer again as a GeoPackage", path, field, dbf)
-					}
-					return nil, warns, fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
-				}
-				return nil, warns, fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
-			}
-			id = v.String()
-			if !utf8.ValidString(id) {
-				// A DBF without .cpg whose text is Latin-1 (older
-				// shapefiles): its bytes are read as Latin-1 letters, so
-				// that "Zoë" and "Zoé" stay two ids in every output.
-				r := make([]rune, len(id))
-				for i := 0; i < len(id); i++ {
-					r[i] = rune(id[i])
-				}
-				id = string(r)
-			}
-			if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
-				f.Close()
-				return nil, warns, fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
-			}
+		id, own, err := s.feature(f, fid)
+		if err != nil {
+			return nil, nil, err
 		}
-		if noGeometry(geom) {
+		if own == nil {
 			empty = append(empty, fid)
-			f.Close()
 			continue
-		}
-		t := geom.Type()
-		if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
-			// Read the name before the feature (which owns geom) is closed.
-			name := geom.Name()
-			f.Close()
-			return nil, warns, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (repair turned it into a %s); remove or fix it in a GIS", path, fid, strings.ToLower(name))
-		}
-		if !(geom.Area() > 0) {
-			f.Close()
-			return nil, warns, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (its points lie on a line or repeat); remove or fix it in a GIS", path, fid)
-		}
-		// Own copy through WKB, so the feature can be closed.
-		b, err := geom.WKB()
-		f.Close()
-		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
-		}
-		own, err := godal.NewGeometryFromWKB(b, lsr)
-		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s feature %d: %s", path, fid, gdalmsg.Cause(err.Error()))
-		}
-		if msg := coordinateProblem(own, lsr.Geographic()); msg != "" {
-			return nil, warns, fmt.Errorf("extent: %s feature %d %s; check the coordinates and the layer's CRS", path, fid, msg)
-		}
-		if lsr.Geographic() {
-			// Each feature's own edges, so that the message can name it.
-			if _, err := mapRings(own, lsr, func(r orb.Ring) (orb.Ring, bool, error) { return r, false, checkRingLon(r, false) }); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
-			}
-		}
-		if ok, why := validity(own); !ok {
-			if why != "" {
-				why = " (" + why + ", in the layer's coordinates)"
-			}
-			return nil, warns, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired%s; fix it in a GIS", path, fid, why)
 		}
 		if prev, ok := byID[id]; ok {
 			un, err := prev.Union(own)
 			if err != nil {
-				return nil, warns, fmt.Errorf("extent: %s feature %d: union with the features before it failed (%s); check the geometry in a GIS", path, fid, gdalmsg.Cause(err.Error()))
+				return nil, nil, fmt.Errorf("extent: %s feature %d: union with the features before it failed (%s); check the geometry in a GIS", s.path, fid, gdalmsg.Cause(err.Error()))
 			}
 			byID[id] = un
 		} else {
@@ -297,13 +304,108 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	switch len(empty) {
 	case 0:
 	case 1:
-		warns = append(warns, fmt.Sprintf("%s feature %d has no geometry; skipped", path, empty[0]))
+		*warns = append(*warns, fmt.Sprintf("%s feature %d has no geometry; skipped", s.path, empty[0]))
 	default:
-		warns = append(warns, fmt.Sprintf("%s features %s have no geometry; skipped", path, featureList(empty)))
+		*warns = append(*warns, fmt.Sprintf("%s features %s have no geometry; skipped", s.path, featureList(empty)))
 	}
 	if len(order) == 0 {
-		return nil, warns, fmt.Errorf("extent: %s layer %q has no polygon features", path, layer.Name())
+		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
+	return byID, order, nil
+}
+
+// feature returns the id of feature number fid (1 for the first read) and
+// its own copy of the geometry, checked: an area in the layer's CRS with
+// sane coordinates and edges, valid after the layer's repair; own is nil
+// for a feature without geometry. It closes f.
+func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *godal.Geometry, err error) {
+	defer f.Close()
+	path := s.path
+	if s.field != "" {
+		if id, err = s.featureID(f, fid); err != nil {
+			return "", nil, err
+		}
+	}
+	geom := f.Geometry()
+	if noGeometry(geom) {
+		return id, nil, nil
+	}
+	t := geom.Type()
+	if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
+		return "", nil, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (repair turned it into a %s); remove or fix it in a GIS", path, fid, strings.ToLower(geom.Name()))
+	}
+	if !(geom.Area() > 0) {
+		return "", nil, fmt.Errorf("extent: %s feature %d is a degenerate polygon with no area (its points lie on a line or repeat); remove or fix it in a GIS", path, fid)
+	}
+	// Own copy through WKB, so the feature can be closed.
+	b, err := geom.WKB()
+	if err != nil {
+		return "", nil, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+	}
+	own, err = godal.NewGeometryFromWKB(b, s.lsr)
+	if err != nil {
+		return "", nil, fmt.Errorf("extent: %s feature %d: %s", path, fid, gdalmsg.Cause(err.Error()))
+	}
+	if msg := coordinateProblem(own, s.lsr.Geographic()); msg != "" {
+		return "", nil, fmt.Errorf("extent: %s feature %d %s; check the coordinates and the layer's CRS", path, fid, msg)
+	}
+	if s.lsr.Geographic() {
+		// Each feature's own edges, so that the message can name it.
+		if _, err := mapRings(own, s.lsr, func(r orb.Ring) (orb.Ring, bool, error) { return r, false, checkRingLon(r, false) }); err != nil {
+			return "", nil, fmt.Errorf("extent: %s feature %d: %w", path, fid, err)
+		}
+	}
+	if ok, why := validity(own); !ok {
+		if why != "" {
+			why = " (" + why + ", in the layer's coordinates)"
+		}
+		return "", nil, fmt.Errorf("extent: %s feature %d has invalid geometry that could not be repaired%s; fix it in a GIS", path, fid, why)
+	}
+	return id, own, nil
+}
+
+// featureID returns feature fid's value in the id field as text (a
+// Latin-1 DBF's bytes read as Latin-1 letters); a feature without the
+// field, or with no value or blank text in it, is refused.
+func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
+	path, field := s.path, s.field
+	fields := f.Fields()
+	v, ok := fields[field]
+	if !ok {
+		names := make([]string, 0, len(fields))
+		for k := range fields {
+			names = append(names, k)
+		}
+		sort.Strings(names)
+		if len(names) == 0 {
+			if dbf := missingDBF(path); dbf != "" {
+				return "", fmt.Errorf("extent: %s has no field %q: its attribute table %s is not beside it; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the .dbf beside it, or export the layer again as a GeoPackage", path, field, dbf)
+			}
+			return "", fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
+		}
+		return "", fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
+	}
+	id := v.String()
+	if !utf8.ValidString(id) {
+		// A DBF without .cpg whose text is Latin-1 (older shapefiles):
+		// its bytes are read as Latin-1 letters, so that "Zoë" and "Zoé"
+		// stay two ids in every output.
+		r := make([]rune, len(id))
+		for i := 0; i < len(id); i++ {
+			r[i] = rune(id[i])
+		}
+		id = string(r)
+	}
+	if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
+		return "", fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
+	}
+	return id, nil
+}
+
+// onGrid puts each id's geometry in the grid's CRS and returns the units
+// in order.
+func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, g *Grid) ([]Unit, error) {
+	lsr, path := s.lsr, s.path
 	units := make([]Unit, 0, len(order))
 	for _, id := range order {
 		geom := byID[id]
@@ -313,30 +415,30 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 			// raster's CRS, and one that runs round a pole (polar
 			// stereographic) is no crossing.
 			if d, err := densifyWholeTurns(geom, lsr); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
+				return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if d != nil {
 				geom = d
 			}
 		}
 		if err := geom.Reproject(g.srs); err != nil {
-			return nil, warns, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
+			return nil, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
 		}
 		if !lsr.Geographic() && g.Geographic {
 			// A projected layer has no antimeridian of its own: its edges
 			// are short wherever they cross 180 degrees.
 			if u, err := unwrapRings(geom, g.srs); err != nil {
-				return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
+				return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if u != nil {
 				geom = u
 			}
 		}
-		s, err := shapeOf(geom, g)
+		sh, err := shapeOf(geom, g)
 		if err != nil {
-			return nil, warns, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
+			return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 		}
-		units = append(units, Unit{ID: id, Shape: s, geom: geom})
+		units = append(units, Unit{ID: id, Shape: sh, geom: geom})
 	}
-	return units, warns, nil
+	return units, nil
 }
 
 // featureList lists feature numbers for one warning about them all: the
