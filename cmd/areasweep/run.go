@@ -236,8 +236,24 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 // flagNameRE finds the first flag a validation message names.
 var flagNameRE = regexp.MustCompile(`--([a-z][a-z-]*)`)
 
-// validate checks the settings that need no file access.
+// validate checks the settings that need no file access: the names, the
+// inputs given, then the numbers, and --out; the first problem is
+// reported.
 func (o *RunOptions) validate() error {
+	for _, check := range []func() error{o.validateNames, o.validateInputs, o.validateNumbers, o.validateLists} {
+		if err := check(); err != nil {
+			return err
+		}
+	}
+	if o.Out == "" {
+		return fmt.Errorf("--out is empty; name an output directory")
+	}
+	return nil
+}
+
+// validateNames checks that a model is given and that the names of the
+// models, nulls and extra layers are well formed and distinct.
+func (o *RunOptions) validateNames() error {
 	if len(o.Models) == 0 && !o.ExtentsOnly {
 		return fmt.Errorf("no model given: add --model NAME=PATH (or 'model:' in the study file)")
 	}
@@ -291,6 +307,11 @@ func (o *RunOptions) validate() error {
 		}
 		extras[strings.ToLower(name)] = name
 	}
+	return nil
+}
+
+// validateInputs checks that the inputs every run needs are named.
+func (o *RunOptions) validateInputs() error {
 	if o.Occurrences == "" {
 		return fmt.Errorf("no occurrences given: add --occurrences FILE.csv")
 	}
@@ -300,6 +321,12 @@ func (o *RunOptions) validate() error {
 	if o.Ecoregions != "" && o.EcoregionField == "" {
 		return fmt.Errorf("--ecoregions needs --ecoregion-field NAME")
 	}
+	return nil
+}
+
+// validateNumbers checks the single numbers: counts, shares, E values,
+// the worker count and the tolerances.
+func (o *RunOptions) validateNumbers() error {
 	if o.EcoregionMinPoints < 1 {
 		return fmt.Errorf("--ecoregion-min-points is %d; it must be 1 or more", o.EcoregionMinPoints)
 	}
@@ -317,6 +344,23 @@ func (o *RunOptions) validate() error {
 	if !(o.Fraction > 0 && o.Fraction <= 1) {
 		return fmt.Errorf("--fraction %g is outside (0,1]", o.Fraction)
 	}
+	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
+		return fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers)
+	}
+	for _, t := range []struct {
+		name string
+		v    float64
+	}{{"tolerance-auc", o.ToleranceAUC}, {"tolerance-partial-roc", o.TolerancePartialROC}, {"tolerance-omission", o.ToleranceOmission}, {"tolerance-boyce", o.ToleranceBoyce}} {
+		if !(t.v > 0) || math.IsInf(t.v, 0) {
+			return fmt.Errorf("--%s is %g; give a positive difference you would treat as negligible", t.name, t.v)
+		}
+	}
+	return nil
+}
+
+// validateLists checks the number lists: finite values, at most so many,
+// E values and thresholds each given once, and the buffers' signs.
+func (o *RunOptions) validateLists() error {
 	for _, lst := range []struct {
 		name string
 		v    []float64
@@ -348,9 +392,6 @@ func (o *RunOptions) validate() error {
 			}
 		}
 	}
-	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
-		return fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers)
-	}
 	for _, d := range o.PointBuffers {
 		if d <= 0 {
 			return fmt.Errorf("--point-buffers value %g must be positive (km)", d)
@@ -360,17 +401,6 @@ func (o *RunOptions) validate() error {
 		if d < 0 {
 			return fmt.Errorf("--hull-buffers value %g must be 0 (the hull) or positive (km)", d)
 		}
-	}
-	for _, t := range []struct {
-		name string
-		v    float64
-	}{{"tolerance-auc", o.ToleranceAUC}, {"tolerance-partial-roc", o.TolerancePartialROC}, {"tolerance-omission", o.ToleranceOmission}, {"tolerance-boyce", o.ToleranceBoyce}} {
-		if !(t.v > 0) || math.IsInf(t.v, 0) {
-			return fmt.Errorf("--%s is %g; give a positive difference you would treat as negligible", t.name, t.v)
-		}
-	}
-	if o.Out == "" {
-		return fmt.Errorf("--out is empty; name an output directory")
 	}
 	return nil
 }
