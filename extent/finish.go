@@ -32,6 +32,17 @@ func (f *Family) Clip(valid Valid, trainCells, testCells []int) {
 // each member's area is still summed cell by cell in cell order (the same
 // float64 sum whatever the number of cores).
 func (b *builder) finish(trainCells, testCells []int) {
+	cells := b.measure()
+	b.setStatus(cells)
+	b.countPoints(trainCells, testCells)
+	b.measureDuplicates()
+	b.keepChains()
+}
+
+// measure clips each member's runs to the valid cells (when known) and
+// sets its cell count and, with the valid cells known, its area and share
+// of the valid area; it returns the cell counts.
+func (b *builder) measure() []int64 {
 	f, g := b.f, b.g
 	n := len(f.Members)
 	cells := make([]int64, n)
@@ -39,9 +50,9 @@ func (b *builder) finish(trainCells, testCells []int) {
 	total := 0.0
 	// Without the valid cells the family is not yet clipped: Clip will
 	// measure it, so areas are not summed twice.
-	measure := b.valid != nil
+	withArea := b.valid != nil
 	var wg sync.WaitGroup
-	if measure {
+	if withArea {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -52,7 +63,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 	// all the members.
 	var rowSame []float64
 	var rowOK []bool
-	if measure {
+	if withArea {
 		rowSame, rowOK = make([]float64, g.Height), make([]bool, g.Height)
 		for row := range rowSame {
 			rowSame[row], rowOK[row] = g.rowArea(row)
@@ -76,7 +87,7 @@ func (b *builder) finish(trainCells, testCells []int) {
 						rows[row] = r
 					}
 					cells[k] += r.cells()
-					if !measure || len(r) == 0 {
+					if !withArea || len(r) == 0 {
 						continue
 					}
 					// One float64 sum per member, cell after cell in cell
@@ -108,6 +119,14 @@ func (b *builder) finish(trainCells, testCells []int) {
 			f.Members[k].Share = area[k] / total
 		}
 	}
+	return cells
+}
+
+// setStatus marks the members that cover no valid cell empty and those
+// with exactly the cells of an earlier member duplicates (with a warning
+// each), and empties the runs of every member that is not ok.
+func (b *builder) setStatus(cells []int64) {
+	f, g := b.f, b.g
 	for k := range f.Members {
 		m := &f.Members[k]
 		if m.Status != vocab.StatusOK {
@@ -133,6 +152,12 @@ func (b *builder) finish(trainCells, testCells []int) {
 			f.cells[k] = cellRuns{rows: make([]rowRuns, g.Height)}
 		}
 	}
+}
+
+// countPoints counts the training and test points in each member (cells
+// -1: outside the grid).
+func (b *builder) countPoints(trainCells, testCells []int) {
+	f := b.f
 	for _, ci := range trainCells {
 		if ci >= 0 {
 			for k := range f.Members {
@@ -151,6 +176,13 @@ func (b *builder) finish(trainCells, testCells []int) {
 			}
 		}
 	}
+}
+
+// measureDuplicates gives each duplicate the measures of the member it
+// equals.
+func (b *builder) measureDuplicates() {
+	f := b.f
+	n := len(f.Members)
 	// A duplicate holds no cell of its own (it is scored under the member
 	// it equals) but is measured as that member: the same cells, area,
 	// share and points (DuplicateOf names an earlier member with status
@@ -169,6 +201,14 @@ func (b *builder) finish(trainCells, testCells []int) {
 			m.Cells, m.AreaKm2, m.Share, m.TrainPoints, m.TestPoints = o.Cells, o.AreaKm2, o.Share, o.TrainPoints, o.TestPoints
 		}
 	}
+}
+
+// keepChains keeps in each nested chain only the members with status ok,
+// cuts a chain where a member is not inside the next (with a warning),
+// drops chains left with fewer than two members and sets each member's
+// chain.
+func (b *builder) keepChains() {
+	f := b.f
 	// Chains: keep only members with Status ok, and check nesting.
 	names := make([]string, 0, len(f.Chains))
 	for name := range f.Chains {
