@@ -91,37 +91,69 @@ func (vi *vertexIndex) leaving(x, y int32) [2]int32 {
 // ordered by the group's first cell in row-major order.
 func (f *Family) traceOutline(k int) [][][][2]int32 {
 	rows := f.cells[k].rows
-	// Runs are numbered in row-major order; first[r] is the number of the
-	// first run of row r.
+	groups := newRunGroups(rows)
+	if groups.runs() == 0 {
+		return nil
+	}
+	edges := cellEdges(rows, groups.runs())
+	t := ringTracer{edges: edges, out: newVertexIndex(edges, len(rows)), used: make([]bool, len(edges))}
+	var rings []tracedRing
+	for start := range edges {
+		if t.used[start] {
+			continue
+		}
+		pts, twoWays, pinched := t.trace(start)
+		// A ring that passes a vertex twice (cells touching only at a
+		// corner) is split there into simple rings, as valid polygons
+		// need: an outer ring and a hole touching it at that point. Only
+		// a vertex with two ways on can be passed twice; a ring without
+		// one is already simple (splitLoops would return it whole).
+		var loops [][][2]int32
+		if pinched {
+			loops = splitLoops(pts, twoWays)
+		} else if len(pts) > 3 {
+			loops = [][][2]int32{slices.Clone(pts)}
+		}
+		for _, loop := range loops {
+			var area int64
+			for i := 1; i < len(loop); i++ {
+				area += int64(loop[i-1][0])*int64(loop[i][1]) - int64(loop[i][0])*int64(loop[i-1][1])
+			}
+			p0, p1 := loop[0], loop[1]
+			group := groups.left(p0[0], p0[1], sign(p1[0]-p0[0]), sign(p1[1]-p0[1]))
+			// With x east and y south, the inside on the left makes outer
+			// rings turn clockwise on screen: a negative shoelace sum.
+			rings = append(rings, tracedRing{pts: loop, group: group, outer: area < 0})
+		}
+	}
+	return outlinePolygons(rings)
+}
+
+// runGroups numbers a member's runs in row-major order and groups those
+// connected across rows (union-find).
+type runGroups struct {
+	rows   []rowRuns
+	first  []int   // first[r]: the number of row r's first run; first[len(rows)] the count
+	parent []int32 // union-find parents of the runs
+}
+
+func newRunGroups(rows []rowRuns) *runGroups {
 	first := make([]int, len(rows)+1)
 	for r, rr := range rows {
 		first[r+1] = first[r] + len(rr)/2
 	}
-	nRuns := first[len(rows)]
-	if nRuns == 0 {
-		return nil
-	}
-	// Groups of runs connected across rows (union-find).
-	parent := make([]int32, nRuns)
-	for i := range parent {
-		parent[i] = int32(i)
-	}
-	var find func(i int32) int32
-	find = func(i int32) int32 {
-		for parent[i] != i {
-			parent[i] = parent[parent[i]]
-			i = parent[i]
-		}
-		return i
+	g := &runGroups{rows: rows, first: first, parent: make([]int32, first[len(rows)])}
+	for i := range g.parent {
+		g.parent[i] = int32(i)
 	}
 	for r := 1; r < len(rows); r++ {
 		a, b := rows[r-1], rows[r]
 		i, j := 0, 0
 		for i < len(a) && j < len(b) {
 			if max(a[i], b[j]) < min(a[i+1], b[j+1]) {
-				x, y := find(int32(first[r-1]+i/2)), find(int32(first[r]+j/2))
+				x, y := g.find(int32(first[r-1]+i/2)), g.find(int32(first[r]+j/2))
 				if x != y {
-					parent[max(x, y)] = min(x, y)
+					g.parent[max(x, y)] = min(x, y)
 				}
 			}
 			if a[i+1] < b[j+1] {
@@ -131,9 +163,44 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 			}
 		}
 	}
-	// Edges, and the edges leaving each vertex. Each run gives two
-	// vertical edges; horizontal ones are about as many on smooth
-	// members (the slice grows beyond when not).
+	return g
+}
+
+// runs returns the number of runs.
+func (g *runGroups) runs() int { return len(g.parent) }
+
+// find returns the group of run i: its smallest run number.
+func (g *runGroups) find(i int32) int32 {
+	for g.parent[i] != i {
+		g.parent[i] = g.parent[g.parent[i]]
+		i = g.parent[i]
+	}
+	return i
+}
+
+// left names the group of the cell on the left of the unit step from
+// (x, y) in direction (dx, dy).
+func (g *runGroups) left(x, y, dx, dy int32) int32 {
+	cx, cy := x, y // south: the cell to the east is (x, y)
+	switch {
+	case dy < 0: // north: cell to the west
+		cx, cy = x-1, y-1
+	case dx < 0: // west: cell to the south
+		cx = x - 1
+	case dx > 0: // east: cell to the north
+		cy = y - 1
+	}
+	rr := g.rows[cy]
+	ri := sort.Search(len(rr)/2, func(i int) bool { return rr[2*i+1] > cx })
+	return g.find(int32(g.first[cy] + ri))
+}
+
+// cellEdges returns the unit-cell boundary of a member's runs as directed
+// edges with the inside on their left: for each row line, the horizontal
+// edges where the rows above and below differ, then each run's two
+// vertical edges. Each run gives two vertical edges; horizontal ones are
+// about as many on smooth members (the slice grows beyond when not).
+func cellEdges(rows []rowRuns, nRuns int) []gridEdge {
 	edges := make([]gridEdge, 0, 4*nRuns)
 	var scratch rowRuns
 	for r := 0; r <= len(rows); r++ {
@@ -157,112 +224,90 @@ func (f *Family) traceOutline(k int) [][][][2]int32 {
 			edges = append(edges, gridEdge{below[i], y, below[i], y + 1}, gridEdge{below[i+1], y + 1, below[i+1], y})
 		}
 	}
-	out := newVertexIndex(edges, len(rows))
-	used := make([]bool, len(edges))
-	type ring struct {
-		pts   [][2]int32
-		group int32
-		outer bool
-	}
-	var rings []ring
-	sign := func(v int32) int32 {
-		switch {
-		case v > 0:
-			return 1
-		case v < 0:
-			return -1
+	return edges
+}
+
+// tracedRing is a simple ring of a member's outline: its corners (the
+// first repeated at the end), the group of runs it bounds and whether it
+// is that group's outer ring.
+type tracedRing struct {
+	pts   [][2]int32
+	group int32
+	outer bool
+}
+
+// ringTracer follows a member's cell edges into rings (see trace). The
+// corners of the ring being traced are gathered in buf (reused), with
+// whether the ring reached each by a vertex with two ways on (at).
+type ringTracer struct {
+	edges []gridEdge
+	out   *vertexIndex
+	used  []bool
+	buf   [][2]int32
+	at    []bool
+}
+
+// trace follows the unused edges from edges[start] until it comes back,
+// turning left where a vertex has two ways on, and returns the ring's
+// corners (its first corner repeated at the end), whether the ring
+// reached each by a vertex with two ways on, and whether it passed such a
+// vertex at all (pinched). The slices are valid until the next call.
+func (t *ringTracer) trace(start int) (pts [][2]int32, twoWays []bool, pinched bool) {
+	edges := t.edges
+	pts, twoWays = t.buf[:0], t.at[:0]
+	cur := start
+	dx, dy := int32(0), int32(0)
+	arrived := false // the current edge starts at a vertex with two ways on
+	for {
+		t.used[cur] = true
+		e := edges[cur]
+		ndx, ndy := sign(e.x1-e.x0), sign(e.y1-e.y0)
+		if ndx != dx || ndy != dy {
+			pts = append(pts, [2]int32{e.x0, e.y0})
+			twoWays = append(twoWays, arrived)
 		}
-		return 0
-	}
-	// groupLeft names the group of the cell on the left of the unit step
-	// from (x, y) in direction (dx, dy).
-	groupLeft := func(x, y, dx, dy int32) int32 {
-		cx, cy := x, y // south: the cell to the east is (x, y)
-		switch {
-		case dy < 0: // north: cell to the west
-			cx, cy = x-1, y-1
-		case dx < 0: // west: cell to the south
-			cx = x - 1
-		case dx > 0: // east: cell to the north
-			cy = y - 1
-		}
-		rr := rows[cy]
-		ri := sort.Search(len(rr)/2, func(i int) bool { return rr[2*i+1] > cx })
-		return find(int32(first[cy] + ri))
-	}
-	// The corners of the ring being traced are gathered in buf (reused),
-	// with whether the ring reached each by a vertex with two ways on
-	// (at), then copied.
-	var buf [][2]int32
-	var at []bool
-	for start := range edges {
-		if used[start] {
-			continue
-		}
-		// Corners of the ring, its first corner repeated at the end.
-		pts, twoWays := buf[:0], at[:0]
-		cur := start
-		dx, dy := int32(0), int32(0)
-		pinched := false // the ring passes a vertex with two ways on
-		arrived := false // the current edge starts at such a vertex
-		for {
-			used[cur] = true
-			e := edges[cur]
-			ndx, ndy := sign(e.x1-e.x0), sign(e.y1-e.y0)
-			if ndx != dx || ndy != dy {
-				pts = append(pts, [2]int32{e.x0, e.y0})
-				twoWays = append(twoWays, arrived)
+		dx, dy = ndx, ndy
+		o := t.out.leaving(e.x1, e.y1)
+		next := o[0]
+		arrived = o[1] >= 0
+		if o[1] >= 0 {
+			pinched = true
+			// Two ways on: turn left, i.e. towards (dy, -dx).
+			n := edges[o[0]]
+			if sign(n.x1-n.x0) != dy || sign(n.y1-n.y0) != -dx {
+				next = o[1]
 			}
-			dx, dy = ndx, ndy
-			o := out.leaving(e.x1, e.y1)
-			next := o[0]
-			arrived = o[1] >= 0
-			if o[1] >= 0 {
-				pinched = true
-				// Two ways on: turn left, i.e. towards (dy, -dx).
-				n := edges[o[0]]
-				if sign(n.x1-n.x0) != dy || sign(n.y1-n.y0) != -dx {
-					next = o[1]
-				}
-			}
-			if used[next] {
-				break
-			}
-			cur = int(next)
 		}
-		// The start is no corner when the last edge runs straight into it.
-		if f0 := edges[start]; len(pts) > 1 && sign(f0.x1-f0.x0) == dx && sign(f0.y1-f0.y0) == dy {
-			pts, twoWays = pts[1:], twoWays[1:]
+		if t.used[next] {
+			break
 		}
-		pts = append(pts, pts[0])
-		twoWays = append(twoWays, true)
-		twoWays[0] = true
-		buf, at = pts[:0], twoWays[:0]
-		// A ring that passes a vertex twice (cells touching only at a
-		// corner) is split there into simple rings, as valid polygons
-		// need: an outer ring and a hole touching it at that point. Only
-		// a vertex with two ways on can be passed twice; a ring without
-		// one is already simple (splitLoops would return it whole).
-		var loops [][][2]int32
-		if pinched {
-			loops = splitLoops(pts, twoWays)
-		} else if len(pts) > 3 {
-			loops = [][][2]int32{slices.Clone(pts)}
-		}
-		for _, loop := range loops {
-			var area int64
-			for i := 1; i < len(loop); i++ {
-				area += int64(loop[i-1][0])*int64(loop[i][1]) - int64(loop[i][0])*int64(loop[i-1][1])
-			}
-			p0, p1 := loop[0], loop[1]
-			group := groupLeft(p0[0], p0[1], sign(p1[0]-p0[0]), sign(p1[1]-p0[1]))
-			// With x east and y south, the inside on the left makes outer
-			// rings turn clockwise on screen: a negative shoelace sum.
-			rings = append(rings, ring{pts: loop, group: group, outer: area < 0})
-		}
+		cur = int(next)
 	}
-	// One polygon per outer ring, in order of its group's first run, with
-	// the holes of its group.
+	// The start is no corner when the last edge runs straight into it.
+	if f0 := edges[start]; len(pts) > 1 && sign(f0.x1-f0.x0) == dx && sign(f0.y1-f0.y0) == dy {
+		pts, twoWays = pts[1:], twoWays[1:]
+	}
+	pts = append(pts, pts[0])
+	twoWays = append(twoWays, true)
+	twoWays[0] = true
+	t.buf, t.at = pts[:0], twoWays[:0]
+	return pts, twoWays, pinched
+}
+
+// sign returns -1, 0 or 1 as v is negative, zero or positive.
+func sign(v int32) int32 {
+	switch {
+	case v > 0:
+		return 1
+	case v < 0:
+		return -1
+	}
+	return 0
+}
+
+// outlinePolygons makes one polygon per outer ring, with the holes of its
+// group, in order of the group's first run.
+func outlinePolygons(rings []tracedRing) [][][][2]int32 {
 	byGroup := map[int32]int{}
 	var polys [][][][2]int32
 	var order []int32
