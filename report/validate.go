@@ -44,7 +44,25 @@ func validate(file string, r *Results) error {
 	if r == nil {
 		return fmt.Errorf("report: no results")
 	}
-	v := &validator{file: file}
+	v := &validator{file: file, models: map[string]bool{}, extents: map[string]bool{}}
+	v.header(r)
+	v.modelList(r.Models)
+	v.extentList(r.Extents)
+	v.scores(r)
+	v.paired(r.Paired)
+	v.rings(r.Rings)
+	v.curves(r.Curves)
+	v.omissions(r.Omissions)
+	v.points(r.Points, r.Grid)
+	if r.Preview != nil {
+		v.preview(r.Preview, len(r.Extents))
+	}
+	return v.err
+}
+
+// header checks the settings, the grid's size, the point counts, and
+// that a model and an extent are listed.
+func (v *validator) header(r *Results) {
 	v.settings(r.Settings)
 	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
 		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
@@ -63,27 +81,35 @@ func validate(file string, r *Results) error {
 	if len(r.Extents) == 0 {
 		v.fail("extents", "the list is empty; a run lists every extent of its family, the base extent first")
 	}
-	models := map[string]bool{}
-	for i, m := range r.Models {
+}
+
+// modelList checks each model's name (set, not repeated) and values, and
+// records the names.
+func (v *validator) modelList(ms []Model) {
+	for i, m := range ms {
 		at := fmt.Sprintf("models[%d] (%s)", i, m.Name)
-		if m.Name == "" || models[m.Name] {
+		if m.Name == "" || v.models[m.Name] {
 			v.fail(at, "name is empty or repeated")
 		}
-		models[m.Name] = true
+		v.models[m.Name] = true
 		v.finite(at+".value_min", m.ValueMin)
 		v.finite(at+".value_max", m.ValueMax)
 		v.unit(at+".floor_share", m.FloorShare)
 	}
-	extents := map[string]bool{}
-	for i, e := range r.Extents {
+}
+
+// extentList checks each extent's id, status and measures, and records
+// the ids.
+func (v *validator) extentList(es []Extent) {
+	for i, e := range es {
 		at := fmt.Sprintf("extents[%d] (%s)", i, e.ID)
-		if e.ID == "" || extents[e.ID] {
+		if e.ID == "" || v.extents[e.ID] {
 			v.fail(at, "id is empty or repeated")
 		}
-		if e.DuplicateOf != "" && !extents[e.DuplicateOf] {
+		if e.DuplicateOf != "" && !v.extents[e.DuplicateOf] {
 			v.fail(at+".duplicate_of", "%q is not an earlier extent", e.DuplicateOf)
 		}
-		extents[e.ID] = true
+		v.extents[e.ID] = true
 		switch e.Status {
 		case vocab.StatusOK, vocab.StatusEmpty, vocab.StatusDuplicate:
 		default:
@@ -95,18 +121,25 @@ func validate(file string, r *Results) error {
 		v.nonNegInt(at+".train_points", int64(e.TrainPoints))
 		v.nonNegInt(at+".test_points", int64(e.TestPoints))
 	}
-	ref := func(at, model, ext string) {
-		if !models[model] {
-			v.fail(at, "model %q is not in models", model)
-		}
-		if !extents[ext] {
-			v.fail(at, "extent %q is not in extents", ext)
-		}
+}
+
+// ref checks that a record at at names a known model and extent.
+func (v *validator) ref(at, model, ext string) {
+	if !v.models[model] {
+		v.fail(at, "model %q is not in models", model)
 	}
+	if !v.extents[ext] {
+		v.fail(at, "extent %q is not in extents", ext)
+	}
+}
+
+// scores checks each score and that there is exactly one per model and
+// extent.
+func (v *validator) scores(r *Results) {
 	scored := map[[2]string]bool{}
 	for i, s := range r.Scores {
 		at := fmt.Sprintf("scores[%d] (model %s, extent %s)", i, s.Model, s.Extent)
-		ref(at, s.Model, s.Extent)
+		v.ref(at, s.Model, s.Extent)
 		if scored[[2]string{s.Model, s.Extent}] {
 			v.fail(at, "model %s on extent %s is scored twice", s.Model, s.Extent)
 		}
@@ -121,10 +154,15 @@ func validate(file string, r *Results) error {
 			}
 		}
 	}
-	for i, p := range r.Paired {
+}
+
+// paired checks each paired difference's names, kind, method, counts and
+// numbers.
+func (v *validator) paired(ps []Paired) {
+	for i, p := range ps {
 		at := fmt.Sprintf("paired[%d] (%s, model %s, extent %s)", i, p.Metric, p.Model, p.Extent)
-		ref(at, p.Model, p.Extent)
-		ref(at+" other side", p.OtherModel, p.OtherExtent)
+		v.ref(at, p.Model, p.Extent)
+		v.ref(at+" other side", p.OtherModel, p.OtherExtent)
 		switch p.Kind {
 		case PairedKindExtent, PairedKindModel, PairedKindNull:
 		default:
@@ -146,10 +184,14 @@ func validate(file string, r *Results) error {
 		}
 		v.nonNeg(at+".se", p.SE)
 	}
-	for i, g := range r.Rings {
+}
+
+// rings checks each ring step's names, AUCs and areas.
+func (v *validator) rings(gs []Ring) {
+	for i, g := range gs {
 		at := fmt.Sprintf("rings[%d] (model %s, %s to %s)", i, g.Model, g.Inner, g.Outer)
-		ref(at, g.Model, g.Inner)
-		ref(at, g.Model, g.Outer)
+		v.ref(at, g.Model, g.Inner)
+		v.ref(at, g.Model, g.Outer)
 		v.unit(at+".auc_inner", g.AUCInner)
 		v.unit(at+".auc_ring", g.AUCRing)
 		v.unit(at+".auc_outer", g.AUCOuter)
@@ -158,9 +200,13 @@ func validate(file string, r *Results) error {
 		v.nonNegInt(at+".ring_cells", g.RingCells)
 		v.finite(at+".share_of_change", g.ShareOfChange)
 	}
-	for i, c := range r.Curves {
+}
+
+// curves checks each ROC curve's names and points.
+func (v *validator) curves(cs []Curve) {
+	for i, c := range cs {
 		at := fmt.Sprintf("curves[%d] (model %s, extent %s)", i, c.Model, c.Extent)
-		ref(at, c.Model, c.Extent)
+		v.ref(at, c.Model, c.Extent)
 		if len(c.X) != len(c.Y) {
 			v.fail(at, "x has %d values and y %d", len(c.X), len(c.Y))
 		}
@@ -171,14 +217,23 @@ func validate(file string, r *Results) error {
 			v.unit(fmt.Sprintf("%s.y[%d]", at, k), c.Y[k])
 		}
 	}
-	for i, o := range r.Omissions {
+}
+
+// omissions checks each omitted point's model and value.
+func (v *validator) omissions(om []Omission) {
+	for i, o := range om {
 		at := fmt.Sprintf("omissions[%d] (model %s)", i, o.Model)
-		if !models[o.Model] {
+		if !v.models[o.Model] {
 			v.fail(at, "model %q is not in models", o.Model)
 		}
 		v.finite(at+".value", o.Value)
 	}
-	for i, p := range r.Points {
+}
+
+// points checks each occurrence's role, status, coordinates and cell on
+// grid g.
+func (v *validator) points(ps []Point, g Grid) {
+	for i, p := range ps {
 		at := fmt.Sprintf("points[%d] (line %d)", i, p.ID)
 		if p.Role != vocab.RoleTrain && p.Role != vocab.RoleTest {
 			v.fail(at+".role", "%q is not train or test", p.Role)
@@ -196,15 +251,11 @@ func validate(file string, r *Results) error {
 			if p.Row != -1 || p.Col != -1 {
 				v.fail(at, "row %d, col %d: a point outside the raster has row -1 and col -1", p.Row, p.Col)
 			}
-		} else if p.Row < 0 || p.Row >= r.Grid.Height || p.Col < 0 || p.Col >= r.Grid.Width {
-			v.fail(at, "row %d, col %d is not a cell of the %dx%d grid", p.Row, p.Col, r.Grid.Width, r.Grid.Height)
+		} else if p.Row < 0 || p.Row >= g.Height || p.Col < 0 || p.Col >= g.Width {
+			v.fail(at, "row %d, col %d is not a cell of the %dx%d grid", p.Row, p.Col, g.Width, g.Height)
 		}
 		v.nonNeg(at+".nearest_train_km", p.NearestTrainKm)
 	}
-	if r.Preview != nil {
-		v.preview(r.Preview, len(r.Extents))
-	}
-	return v.err
 }
 
 // validator keeps the first problem found.
@@ -212,6 +263,9 @@ func validate(file string, r *Results) error {
 type validator struct {
 	file string
 	err  error
+	// models and extents are the names listed so far, for the records
+	// that refer to them (ref).
+	models, extents map[string]bool
 }
 
 func (v *validator) fail(at, format string, args ...any) {
