@@ -120,6 +120,46 @@ func rocFigure(r *Results) figure {
 		f.W = oneColumn
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
+	f.Caption = rocCaption(r, es, len(all), thinned, e)
+	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
+	legend := legendRows(rocLegend(r, es, e, diag), f.W-barW)
+	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
+	f.draw = func(dc draw.Canvas) error {
+		bottom, rest := splitBottom(dc, legendH)
+		drawLegendRows(bottom, legend)
+		barC, rest := splitRight(rest, barW)
+		plots := make([][]*plot.Plot, rows)
+		for j := range plots {
+			plots[j] = make([]*plot.Plot, cols)
+		}
+		for i, model := range panels {
+			p, err := rocPanel(r, model, es, e, amin, amax, panelW, cols, diag)
+			if err != nil {
+				return err
+			}
+			plots[i/cols][i%cols] = p
+		}
+		drawTiles(plots, rest)
+		if amax > 0 {
+			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
+			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
+			var marks []float64
+			for _, ex := range es {
+				marks = append(marks, ex.AreaKm2)
+			}
+			drawAreaBar(barC, amin, amax, marks)
+		}
+		return nil
+	}
+	return f
+}
+
+// rocCaption is the ROC figure's caption: what the axes and curves are,
+// the anchors' styles, the partial ROC band at the first E (e), the
+// nulls' shading, and, with the extents thinned to those drawn (es of
+// nAll), which ones each panel draws.
+func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) string {
 	perNull := ""
 	if len(nulls(r)) > 0 {
 		perNull = " (and per null, after the models)"
@@ -137,23 +177,27 @@ func rocFigure(r *Results) figure {
 	if len(anchors) > 0 {
 		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
-	f.Caption = fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
+	c := fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
 		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)%s"+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
 		"The selector under the figures names each curve.", perNull, anchorNote, fmtG(e))
 	if len(nulls(r)) > 0 {
-		f.Caption += " A null's panel is shaded light grey: a reference, not a model."
+		c += " A null's panel is shaded light grey: a reference, not a model."
 	}
 	if thinned {
-		f.Caption += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
+		c += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
 			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+
-			"the selector under the figures draws any of the %d.", len(all), rocMaxCurves, len(es), len(all))
+			"the selector under the figures draws any of the %d.", nAll, rocMaxCurves, len(es), nAll)
 	}
-	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
-	band := color.Gray{Y: 225}
+	return c
+}
+
+// rocLegend is the ROC figure's key: the partial ROC band (e > 0), the
+// random prediction (diag), the nulls' shading and the anchors' styles.
+func rocLegend(r *Results, es []Extent, e float64, diag draw.LineStyle) []legendItem {
 	var items []legendItem
 	if e > 0 {
-		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: band}})
+		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: rocBand}})
 	}
 	items = append(items, legendItem{"random prediction", lineThumb{diag}})
 	if len(nulls(r)) > 0 {
@@ -167,100 +211,85 @@ func rocFigure(r *Results) figure {
 			items = append(items, legendItem{ex.ID, lineThumb{ls}})
 		}
 	}
-	legend := legendRows(items, f.W-barW)
-	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
-	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
-	f.draw = func(dc draw.Canvas) error {
-		bottom, rest := splitBottom(dc, legendH)
-		drawLegendRows(bottom, legend)
-		barC, rest := splitRight(rest, barW)
-		plots := make([][]*plot.Plot, rows)
-		for j := range plots {
-			plots[j] = make([]*plot.Plot, cols)
-		}
-		for i, model := range panels {
-			p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
-			p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
-			p.X.Label.Text = "share of extent predicted present"
-			if cols >= 3 {
-				p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
-			}
-			p.Y.Label.Text = "share of test records"
-			if isNull(r, model) {
-				// A null's panel is shaded: a reference, never one more
-				// model.
-				shade, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}, {X: 1, Y: 1}, {X: 0, Y: 1}})
-				if err != nil {
-					return fmt.Errorf("report: figure roc: %w", err)
-				}
-				shade.Color = nullPanelShade
-				shade.LineStyle.Width = 0
-				p.Add(shade)
-			}
-			if e > 0 {
-				poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
-				if err != nil {
-					return fmt.Errorf("report: figure roc: %w", err)
-				}
-				poly.Color = band
-				poly.LineStyle.Width = 0
-				p.Add(poly)
-			}
-			d, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
-			if err != nil {
-				return fmt.Errorf("report: figure roc: %w", err)
-			}
-			d.LineStyle = diag
-			p.Add(d)
-			// Largest first, so the small extents' dark curves lie on top,
-			// and the anchors last of all.
-			order := make([]int, 0, len(es))
-			for _, anchors := range []bool{false, true} {
-				for k := len(es) - 1; k >= 0; k-- {
-					if _, ok := rocAnchorStyle(es[k].Kind); ok == anchors {
-						order = append(order, k)
-					}
-				}
-			}
-			for _, k := range order {
-				ex := es[k]
-				c := findCurve(r, model, ex.ID)
-				if c == nil || !scoredFor(r, model, ex.ID) {
-					continue
-				}
-				m := min(len(c.X), len(c.Y))
-				if m < 2 {
-					continue
-				}
-				xys := make(plotter.XYs, m)
-				for q := range m {
-					xys[q] = plotter.XY{X: c.X[q], Y: c.Y[q]}
-				}
-				l, err := plotter.NewLine(xys)
-				if err != nil {
-					return fmt.Errorf("report: figure roc: %w", err)
-				}
-				l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
-				if ls, ok := rocAnchorStyle(ex.Kind); ok {
-					l.LineStyle = ls
-				}
-				p.Add(newPaddingLine(l))
-			}
-			plots[i/cols][i%cols] = p
-		}
-		drawTiles(plots, rest)
-		if amax > 0 {
-			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
-			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
-			var marks []float64
-			for _, ex := range es {
-				marks = append(marks, ex.AreaKm2)
-			}
-			drawAreaBar(barC, amin, amax, marks)
-		}
-		return nil
+	return items
+}
+
+// rocBand is the fill of the partial ROC region.
+var rocBand = color.Gray{Y: 225}
+
+// rocPanel draws model's panel: the null's shade, the partial ROC band at
+// e, the random prediction (diag) and one curve per extent of es on the
+// area ramp from amin to amax (the anchors in their own styles), largest
+// first.
+func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
+	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
+	p.X.Label.Text = "share of extent predicted present"
+	if cols >= 3 {
+		p.X.Tick.Marker = niceTicks{N: 3} // narrow panels: 0, 0.5, 1
 	}
-	return f
+	p.Y.Label.Text = "share of test records"
+	if isNull(r, model) {
+		// A null's panel is shaded: a reference, never one more
+		// model.
+		shade, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+		if err != nil {
+			return nil, fmt.Errorf("report: figure roc: %w", err)
+		}
+		shade.Color = nullPanelShade
+		shade.LineStyle.Width = 0
+		p.Add(shade)
+	}
+	if e > 0 {
+		poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+		if err != nil {
+			return nil, fmt.Errorf("report: figure roc: %w", err)
+		}
+		poly.Color = rocBand
+		poly.LineStyle.Width = 0
+		p.Add(poly)
+	}
+	d, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
+	if err != nil {
+		return nil, fmt.Errorf("report: figure roc: %w", err)
+	}
+	d.LineStyle = diag
+	p.Add(d)
+	// Largest first, so the small extents' dark curves lie on top,
+	// and the anchors last of all.
+	order := make([]int, 0, len(es))
+	for _, anchors := range []bool{false, true} {
+		for k := len(es) - 1; k >= 0; k-- {
+			if _, ok := rocAnchorStyle(es[k].Kind); ok == anchors {
+				order = append(order, k)
+			}
+		}
+	}
+	for _, k := range order {
+		ex := es[k]
+		c := findCurve(r, model, ex.ID)
+		if c == nil || !scoredFor(r, model, ex.ID) {
+			continue
+		}
+		m := min(len(c.X), len(c.Y))
+		if m < 2 {
+			continue
+		}
+		xys := make(plotter.XYs, m)
+		for q := range m {
+			xys[q] = plotter.XY{X: c.X[q], Y: c.Y[q]}
+		}
+		l, err := plotter.NewLine(xys)
+		if err != nil {
+			return nil, fmt.Errorf("report: figure roc: %w", err)
+		}
+		l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
+		if ls, ok := rocAnchorStyle(ex.Kind); ok {
+			l.LineStyle = ls
+		}
+		p.Add(newPaddingLine(l))
+	}
+	return p, nil
 }
 
 // nullPanelShade fills the data area of a null's ROC panel, lighter than
