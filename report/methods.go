@@ -34,8 +34,6 @@ func fmtList(vs []float64, unit string) string {
 // methodsText writes methods.md: a methods paragraph and a reply to a
 // reviewer, both filled with the run's numbers.
 func methodsText(r *Results) string {
-	s := r.Sensitivity
-	st := r.Settings
 	var b strings.Builder
 	sw := strings.TrimSpace(r.Software.Name + " " + r.Software.Version)
 	if sw == "" {
@@ -45,99 +43,10 @@ func methodsText(r *Results) string {
 	b.WriteString("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.\n\n")
 	b.WriteString("## Methods\n\n")
 
-	models := s.ModelNames
-	var ok []Extent
-	for _, e := range r.Extents {
-		if e.Status == vocab.StatusOK {
-			ok = append(ok, e)
-		}
-	}
-	fam := familyList(ok)
-	fmt.Fprintf(&b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), plural(len(models)), joinList(models), len(ok), plural(len(ok)), sw, joinList(fam))
-	if len(s.SkippedExtents) > 0 {
-		var sk []string
-		for _, e := range s.SkippedExtents {
-			sk = append(sk, fmt.Sprintf("%s (%s)", e.ID, e.Reason))
-		}
-		fmt.Fprintf(&b, " Left out: %s.", joinList(sk))
-	}
-	if len(s.Unscored) > 0 {
-		var us []string
-		for _, u := range s.Unscored {
-			us = append(us, fmt.Sprintf("%s on %s (%s)", u.Model, u.Extent, u.Reason))
-		}
-		fmt.Fprintf(&b, " Not scored: %s.", joinList(us))
-	}
-	pc := r.PointCounts
-	fmt.Fprintf(&b, " We used %d training and %d test occurrence records", pc.Train, pc.Test)
-	var dropped []string
-	if pc.Thinned > 0 {
-		dropped = append(dropped, fmt.Sprintf("%d thinned to one record per cell", pc.Thinned))
-	}
-	if pc.OutsideRaster > 0 {
-		dropped = append(dropped, fmt.Sprintf("%d outside the raster", pc.OutsideRaster))
-	}
-	if pc.NoData > 0 {
-		dropped = append(dropped, fmt.Sprintf("%d on no data", pc.NoData))
-	}
-	if len(dropped) > 0 {
-		fmt.Fprintf(&b, " (%s)", joinList(dropped))
-	}
-	b.WriteString(".")
-	if s.TestPointsVary {
-		var fewer []string
-		all := 0
-		for i, id := range s.ScoredExtents {
-			if i >= len(s.TestPoints) {
-				continue
-			}
-			if s.TestPoints[i] == pc.Test {
-				all++
-			} else {
-				fewer = append(fewer, fmt.Sprintf("%s %d", id, s.TestPoints[i]))
-			}
-		}
-		holdAll := ""
-		if all > 0 {
-			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
-		}
-		fmt.Fprintf(&b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, fewerList(s, fewer, all > 0))
-	}
-	fmt.Fprintf(&b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
-	if len(st.E) > 0 {
-		fmt.Fprintf(&b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
-			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
-	}
-	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
-	if len(st.FixedThresholds) > 0 {
-		fmt.Fprintf(&b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
-	}
-	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
-	// The predicted area is judged like the other scores: say what it is.
-	b.WriteString("; the predicted area, the share of the extent's area at or above the minimum training presence")
-	if st.BoyceSteps > 0 {
-		fmt.Fprintf(&b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
-		for _, m := range r.Models {
-			if m.NullKind == NullDistance {
-				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
-				break
-			}
-		}
-	}
-	b.WriteString(".")
-	fmt.Fprintf(&b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(&b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
-	fmt.Fprintf(&b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
-		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
-	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
-	if len(s.Chains) > 0 {
-		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
-	}
-	if len(models) >= 2 {
-		b.WriteString(", the split of the sums of squares of the models × extents table (a property of the extents chosen) and Kendall's W of the model order (Legendre 2005); models were compared by their paired differences on each extent")
-	}
-	b.WriteString(".\n\n")
+	methodsFamily(&b, r, sw)
+	methodsRecords(&b, r)
+	methodsScores(&b, r)
+	methodsInference(&b, r)
 
 	// Results in numbers.
 	b.WriteString("Results: ")
@@ -157,6 +66,128 @@ func methodsText(r *Results) string {
 		b.WriteString("- " + ref + "\n")
 	}
 	return b.String()
+}
+
+// methodsFamily writes the methods paragraph's first sentences: the
+// models, the family of extents (software sw), and the extents left out
+// and the models not scored on some.
+func methodsFamily(b *strings.Builder, r *Results, sw string) {
+	s := r.Sensitivity
+	models := s.ModelNames
+	var ok []Extent
+	for _, e := range r.Extents {
+		if e.Status == vocab.StatusOK {
+			ok = append(ok, e)
+		}
+	}
+	fam := familyList(ok)
+	fmt.Fprintf(b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
+		len(models), plural(len(models)), joinList(models), len(ok), plural(len(ok)), sw, joinList(fam))
+	if len(s.SkippedExtents) > 0 {
+		var sk []string
+		for _, e := range s.SkippedExtents {
+			sk = append(sk, fmt.Sprintf("%s (%s)", e.ID, e.Reason))
+		}
+		fmt.Fprintf(b, " Left out: %s.", joinList(sk))
+	}
+	if len(s.Unscored) > 0 {
+		var us []string
+		for _, u := range s.Unscored {
+			us = append(us, fmt.Sprintf("%s on %s (%s)", u.Model, u.Extent, u.Reason))
+		}
+		fmt.Fprintf(b, " Not scored: %s.", joinList(us))
+	}
+}
+
+// methodsRecords writes how many occurrence records were used, why the
+// others were dropped, and how many test records each extent holds when
+// they differ.
+func methodsRecords(b *strings.Builder, r *Results) {
+	s := r.Sensitivity
+	pc := r.PointCounts
+	fmt.Fprintf(b, " We used %d training and %d test occurrence records", pc.Train, pc.Test)
+	var dropped []string
+	if pc.Thinned > 0 {
+		dropped = append(dropped, fmt.Sprintf("%d thinned to one record per cell", pc.Thinned))
+	}
+	if pc.OutsideRaster > 0 {
+		dropped = append(dropped, fmt.Sprintf("%d outside the raster", pc.OutsideRaster))
+	}
+	if pc.NoData > 0 {
+		dropped = append(dropped, fmt.Sprintf("%d on no data", pc.NoData))
+	}
+	if len(dropped) > 0 {
+		fmt.Fprintf(b, " (%s)", joinList(dropped))
+	}
+	b.WriteString(".")
+	if s.TestPointsVary {
+		var fewer []string
+		all := 0
+		for i, id := range s.ScoredExtents {
+			if i >= len(s.TestPoints) {
+				continue
+			}
+			if s.TestPoints[i] == pc.Test {
+				all++
+			} else {
+				fewer = append(fewer, fmt.Sprintf("%s %d", id, s.TestPoints[i]))
+			}
+		}
+		holdAll := ""
+		if all > 0 {
+			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
+		}
+		fmt.Fprintf(b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, fewerList(s, fewer, all > 0))
+	}
+}
+
+// methodsScores writes what was computed on each extent: the AUC, the
+// partial ROC ratio, the omission rates, the predicted area and the
+// Boyce index, with their settings.
+func methodsScores(b *strings.Builder, r *Results) {
+	st := r.Settings
+	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
+	if len(st.E) > 0 {
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
+			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+	}
+	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
+	if len(st.FixedThresholds) > 0 {
+		fmt.Fprintf(b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
+	}
+	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
+	// The predicted area is judged like the other scores: say what it is.
+	b.WriteString("; the predicted area, the share of the extent's area at or above the minimum training presence")
+	if st.BoyceSteps > 0 {
+		fmt.Fprintf(b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
+		for _, m := range r.Models {
+			if m.NullKind == NullDistance {
+				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
+				break
+			}
+		}
+	}
+	b.WriteString(".")
+}
+
+// methodsInference writes how the scores' uncertainty and the
+// differences were computed and judged, and what is description only.
+func methodsInference(b *strings.Builder, r *Results) {
+	s, st := r.Sensitivity, r.Settings
+	models := s.ModelNames
+	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
+	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
+	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
+	if len(s.Chains) > 0 {
+		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
+	}
+	if len(models) >= 2 {
+		b.WriteString(", the split of the sums of squares of the models × extents table (a property of the extents chosen) and Kendall's W of the model order (Legendre 2005); models were compared by their paired differences on each extent")
+	}
+	b.WriteString(".\n\n")
+
 }
 
 // maxListed is the longest list of extents methods.md writes out one by
