@@ -506,11 +506,38 @@ func fmtPResampled(p float64, b int) string {
 // extent?" with this run's numbers.
 func reviewerText(r *Results) string {
 	s := r.Sensitivity
-	st := r.Settings
 	var b strings.Builder
+	reviewerWhat(&b, r)
+	reviewerVerdicts(&b, s)
+	b.WriteString(aucAnswer(s))
+	for _, rk := range s.Rankings {
+		if rk.Metric == "auc" && rk.identical() {
+			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+		} else if rk.Metric == "auc" && rk.Extents > 0 {
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+		}
+	}
+	b.WriteString(reviewerNullText(s))
+	if len(s.ModelNames) >= 2 {
+		b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	} else {
+		// One model: there is no model comparison to restrict.
+		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
+	}
+	if s.Independence.Warn {
+		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
+	}
+	return b.String()
+}
+
+// reviewerWhat writes what the reply rests on: the extents rescored
+// (with their range of areas and of test records) and, with two or more,
+// how they were compared and judged.
+func reviewerWhat(b *strings.Builder, r *Results) {
+	s, st := r.Sensitivity, r.Settings
 	n := len(s.ScoredExtents)
 	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. ")
-	fmt.Fprintf(&b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, plural(n))
+	fmt.Fprintf(b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, plural(n))
 	if n > 0 {
 		lo, hi := -1.0, -1.0
 		for _, e := range r.Extents {
@@ -526,10 +553,10 @@ func reviewerText(r *Results) string {
 			}
 		}
 		if n == 1 {
-			fmt.Fprintf(&b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
+			fmt.Fprintf(b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(&b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, plural(n-1), areaRange(lo, hi))
+			fmt.Fprintf(b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, plural(n-1), areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {
@@ -537,18 +564,25 @@ func reviewerText(r *Results) string {
 		for _, n := range s.TestPoints {
 			lo, hi = min(lo, n), max(hi, n)
 		}
-		fmt.Fprintf(&b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
+		fmt.Fprintf(b, " (between %d and %d of the %d test records fall inside an extent, and each extent is scored on those)", lo, hi, r.PointCounts.Test)
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(&b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
+		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
 			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
 		if n > 2 {
 			// One interval wholly outside makes a score extent-sensitive:
 			// with many extents that is easier to reach by chance.
-			fmt.Fprintf(&b, "The intervals are per extent, not adjusted for the %d comparisons with %s. ", n-1, referenceWord(s))
+			fmt.Fprintf(b, "The intervals are per extent, not adjusted for the %d comparisons with %s. ", n-1, referenceWord(s))
 		}
 	}
+}
+
+// reviewerVerdicts writes which scores moved with the extent beyond the
+// tolerance, which stayed within it and which the test records cannot
+// judge.
+func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
+	n := len(s.ScoredExtents)
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
 		label := v.Label
@@ -579,35 +613,16 @@ func reviewerText(r *Results) string {
 		some, every = "for "+s.ModelNames[0], "for "+s.ModelNames[0]
 	}
 	if len(sensitive) > 0 {
-		fmt.Fprintf(&b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
+		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
 	}
 	if len(robust) > 0 {
-		fmt.Fprintf(&b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
+		fmt.Fprintf(b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
 	}
 	if len(undetermined) > 0 {
 		// Undetermined: an interval straddles the tolerance, or a score
 		// is undefined or has too few common test records somewhere.
-		fmt.Fprintf(&b, "For %s the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent). ", joinList(undetermined))
+		fmt.Fprintf(b, "For %s the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent). ", joinList(undetermined))
 	}
-	b.WriteString(aucAnswer(s))
-	for _, rk := range s.Rankings {
-		if rk.Metric == "auc" && rk.identical() {
-			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
-		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rankingOrderText(rk))
-		}
-	}
-	b.WriteString(reviewerNullText(s))
-	if len(s.ModelNames) >= 2 {
-		b.WriteString("We therefore report every score together with the extent it was computed on, compare models only within one extent, and treat the values as evaluation aids rather than as absolute measures of model quality.")
-	} else {
-		// One model: there is no model comparison to restrict.
-		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
-	}
-	if s.Independence.Warn {
-		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
-	}
-	return b.String()
 }
 
 // aucAnswer answers the reviewer's question for AUC in one sentence:
