@@ -106,6 +106,16 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	var baseOK bool
 	mv.BaseValue, baseOK, _, _, _, _ = metricValue(m, bs)
 	mv.BaseDefined = baseOK
+	outside := a.diffsFromBase(m, model, &mv)
+	a.judge(m, model, &mv, outside, bs, baseOK)
+	return mv
+}
+
+// diffsFromBase adds to mv model's paired difference of metric m on every
+// other extent it is scored on from the base extent, with the extents
+// where it is undefined and the largest in size, and returns how many lie
+// wholly outside the tolerance.
+func (a *analysis) diffsFromBase(m MetricInfo, model string, mv *ModelVerdict) int {
 	outside := 0
 	for _, e := range a.extents {
 		if e.ID == a.base || a.score(model, e.ID) == nil {
@@ -124,6 +134,13 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 			mv.Largest = len(mv.Diffs) - 1
 		}
 	}
+	return outside
+}
+
+// judge sets mv's verdict and sentence from its differences (outside of
+// them wholly beyond the tolerance); bs is the score on the base extent,
+// baseOK whether m is defined there.
+func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside int, bs *Score, baseOK bool) {
 	name := fmt.Sprintf("%s of %s", upperFirst(m.Label), model)
 	tol := "±" + fmtG(m.Tolerance)
 	switch {
@@ -135,14 +152,14 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 			where = "the reference extent " + a.base
 		}
 		mv.Sentence = fmt.Sprintf("%s: scored on %s only, so there is nothing to compare.", name, where)
-		return mv
+		return
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
 		if !baseOK {
 			why = fmt.Sprintf("it is undefined on %s, the base extent%s", a.base, undefinedWhy(m, bs))
 		}
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
-		return mv
+		return
 	}
 	big := mv.Diffs[mv.Largest]
 	largest := "the largest is " + differenceText(big, m.Tolerance)
@@ -154,7 +171,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
-		notOn = " " + upperFirst(a.undefinedText(m, model, mv)) + "."
+		notOn = " " + upperFirst(a.undefinedText(m, model, *mv)) + "."
 	}
 	within, largestWithin := "lies within "+tol+" with its 95% interval", largest
 	if exact {
@@ -175,7 +192,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		// Undetermined only because the score is undefined somewhere:
 		// the test points are not the reason.
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
-			name, a.undefinedText(m, model, mv), a.base, within, largestWithin)
+			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin)
 	case big.Diff == 0 && big.Low == 0 && big.High == 0:
 		// Undetermined only for the differences on too few test points,
 		// every one of them 0: no extent is "the largest".
@@ -194,7 +211,6 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
 			name, why, tol, a.base, differenceText(big, m.Tolerance), straddle, notOn, tooFewText(mv.Diffs))
 	}
-	return mv
 }
 
 // toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
