@@ -11,6 +11,39 @@ import (
 func (a *analysis) decompose(m MetricInfo) Decomposition {
 	d := Decomposition{Metric: m.Key, Models: append([]string{}, a.models...), Extents: []string{},
 		Values: [][]float64{}, Rankings: []ExtentRanking{}, DiffersFromBase: []string{}}
+	cols := a.table(m, &d)
+	I, J := len(a.models), len(d.Extents)
+	if J == 0 {
+		d.Note = "no extent is scored for every model"
+		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", upperFirst(m.Label))
+		return d
+	}
+	d.rank(cols, a.models, m.HigherIsBetter)
+	if J < 2 || I < 2 {
+		d.Note = "fewer than two extents scored for every model"
+		d.Sentence = fmt.Sprintf("%s: only %d extent is scored for every model, too few to split extent from model effects.", upperFirst(m.Label), J)
+		if I < 2 {
+			d.Sentence = fmt.Sprintf("%s: only one model, so extent and model effects cannot be split.", upperFirst(m.Label))
+		}
+		return d
+	}
+	d.sumsOfSquares()
+	if d.SSTotal <= 0 {
+		d.Note = "every model scores the same on every extent"
+		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", m.Label)
+		return d
+	}
+	d.Defined = true
+	d.ShareExtent = d.SSExtent / d.SSTotal
+	d.ShareModel = d.SSModel / d.SSTotal
+	d.ShareResidual = d.SSResidual / d.SSTotal
+	d.Sentence = decompositionSentence(m, &d)
+	return d
+}
+
+// table sets d's extents (those where m is defined for every model) and
+// values (one row per model), and returns the same values by extent.
+func (a *analysis) table(m MetricInfo, d *Decomposition) [][]float64 {
 	cols := [][]float64{}
 	for _, e := range a.extents {
 		col := make([]float64, 0, len(a.models))
@@ -38,17 +71,18 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		}
 		d.Values = append(d.Values, row)
 	}
-	if J == 0 {
-		d.Note = "no extent is scored for every model"
-		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", upperFirst(m.Label))
-		return d
-	}
+	return cols
+}
 
-	// Rankings per extent.
+// rank sets d's rankings of models on each extent (cols: the values by
+// extent, best first as higherIsBetter says), the extents whose order
+// differs from the base extent's, and Kendall's W of the rankings.
+func (d *Decomposition) rank(cols [][]float64, models []string, higherIsBetter bool) {
+	J := len(cols)
 	ranks := make([][]float64, J)
 	ties := make([]float64, J)
 	for j := 0; j < J; j++ {
-		ranks[j], ties[j] = ranksBestFirst(cols[j], m.HigherIsBetter)
+		ranks[j], ties[j] = ranksBestFirst(cols[j], higherIsBetter)
 	}
 	d.BaseExtent = BaseExtent(d.Extents)
 	base := 0
@@ -58,7 +92,7 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		}
 	}
 	for j := 0; j < J; j++ {
-		er := ExtentRanking{Extent: d.Extents[j], Ranks: ranks[j], Order: orderByRank(a.models, ranks[j])}
+		er := ExtentRanking{Extent: d.Extents[j], Ranks: ranks[j], Order: orderByRank(models, ranks[j])}
 		for i := range ranks[j] {
 			if ranks[j][i] != ranks[base][i] {
 				er.DiffersFromBase = true
@@ -73,16 +107,13 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 	if w, ok := kendallW(ranks, ties); ok {
 		d.KendallW, d.KendallWDefined = w, true
 	}
+}
 
-	if J < 2 || I < 2 {
-		d.Note = "fewer than two extents scored for every model"
-		d.Sentence = fmt.Sprintf("%s: only %d extent is scored for every model, too few to split extent from model effects.", upperFirst(m.Label), J)
-		if I < 2 {
-			d.Sentence = fmt.Sprintf("%s: only one model, so extent and model effects cannot be split.", upperFirst(m.Label))
-		}
-		return d
-	}
-	// Sums of squares.
+// sumsOfSquares splits the total sum of squares of d's models x extents
+// table about its grand mean into the extents', the models' and the
+// residual (interaction) parts.
+func (d *Decomposition) sumsOfSquares() {
+	I, J := len(d.Values), len(d.Extents)
 	var gm float64
 	rowMean := make([]float64, I)
 	colMean := make([]float64, J)
@@ -112,17 +143,6 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		dv := rowMean[i] - gm
 		d.SSModel += float64(J) * dv * dv
 	}
-	if d.SSTotal <= 0 {
-		d.Note = "every model scores the same on every extent"
-		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", m.Label)
-		return d
-	}
-	d.Defined = true
-	d.ShareExtent = d.SSExtent / d.SSTotal
-	d.ShareModel = d.SSModel / d.SSTotal
-	d.ShareResidual = d.SSResidual / d.SSTotal
-	d.Sentence = decompositionSentence(m, &d)
-	return d
 }
 
 func orderByRank(models []string, ranks []float64) []string {
