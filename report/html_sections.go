@@ -80,10 +80,28 @@ func analysisSection(r *Results) analysisView {
 	if _, ok := mapFigure(r); ok && len(r.Models) > 0 {
 		v.MapModel = r.Models[0].Name
 	}
-	// Verdicts with every paired difference from the base extent.
+	v.ModelVerdicts, v.Differences = differencesSection(s, label)
+	v.Rankings = rankingsSection(s, label)
+	v.Spread = spreadTable(s, label)
+	v.Decomposition = decompositionSection(s, label)
+	v.Chains = chainsSection(s)
+	v.Truncation = []string{}
+	for _, t := range s.Truncation {
+		v.Truncation = append(v.Truncation, t.Sentence)
+	}
+	v.AboveNull = aboveNullSection(r)
+	v.IndependenceSentence, v.Independence, v.SortingBias = independenceSection(r)
+	v.Omitted = omittedTable(s)
+	return v
+}
+
+// differencesSection is each verdict's badge and the table of every
+// paired difference from the base extent.
+func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlTable) {
+	var badges []badge
 	var rows [][]cell
 	for _, mv := range s.ModelVerdicts {
-		v.ModelVerdicts = append(v.ModelVerdicts, verdictBadge(mv.Verdict, mv.Sentence))
+		badges = append(badges, verdictBadge(mv.Verdict, mv.Sentence))
 		for _, d := range mv.Diffs {
 			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
 			if !d.Defined {
@@ -96,22 +114,29 @@ func analysisSection(r *Results) analysisView {
 			rows = append(rows, row)
 		}
 	}
-	v.Differences = table("tbl-differences", []string{"metric", "model", "extent", "test points", "common", "difference", "95% interval", "method", "test-set shift", "against tolerance"}, rows)
+	return badges, table("tbl-differences", []string{"metric", "model", "extent", "test points", "common", "difference", "95% interval", "method", "test-set shift", "against tolerance"}, rows)
 
-	// Model comparisons.
-	if len(s.Rankings) > 0 {
-		st := &sentencesTable{}
-		rows = nil
-		for _, rk := range s.Rankings {
-			st.Sentences = append(st.Sentences, rk.Sentence)
-			rows = append(rows, []cell{tc(label[rk.Metric]), tc(rk.Model + " − " + rk.Other), ic(rk.Extents), ic(rk.Better), ic(rk.Worse), ic(rk.WithinNoise)})
-		}
-		st.Table = table("tbl-model-differences", []string{"metric", "models", "extents", "better beyond noise", "worse beyond noise", "within noise"}, rows)
-		v.Rankings = st
+}
+
+// rankingsSection is the models' paired comparisons, sentences and
+// table; nil with one model.
+func rankingsSection(s *Sensitivity, label map[string]string) *sentencesTable {
+	if len(s.Rankings) == 0 {
+		return nil
 	}
+	st := &sentencesTable{}
+	var rows [][]cell
+	for _, rk := range s.Rankings {
+		st.Sentences = append(st.Sentences, rk.Sentence)
+		rows = append(rows, []cell{tc(label[rk.Metric]), tc(rk.Model + " − " + rk.Other), ic(rk.Extents), ic(rk.Better), ic(rk.Worse), ic(rk.WithinNoise)})
+	}
+	st.Table = table("tbl-model-differences", []string{"metric", "models", "extents", "better beyond noise", "worse beyond noise", "within noise"}, rows)
+	return st
+}
 
-	// Spread (description).
-	rows = nil
+// spreadTable is each score's spread across extents (a description).
+func spreadTable(s *Sensitivity, label map[string]string) htmlTable {
+	var rows [][]cell
 	for _, sp := range s.Spreads {
 		row := []cell{tc(label[sp.Metric]), tc(sp.Model), ic(sp.N)}
 		if sp.N == 0 {
@@ -122,46 +147,55 @@ func analysisSection(r *Results) analysisView {
 		row = append(row, nc(sp.Min, 3), nc(sp.Max, 3), nc(sp.Range, 3), defNum(sp.SD, sp.SDDefined, 3))
 		rows = append(rows, row)
 	}
-	v.Spread = table("tbl-spread", []string{"metric", "model", "extents scored", "minimum", "maximum", "range", "SD across extents"}, rows)
+	return table("tbl-spread", []string{"metric", "model", "extents scored", "minimum", "maximum", "range", "SD across extents"}, rows)
 
-	v.Decomposition = decompositionSection(s, label)
-	v.Chains = chainsSection(s)
-	v.Truncation = []string{}
-	for _, t := range s.Truncation {
-		v.Truncation = append(v.Truncation, t.Sentence)
-	}
+}
 
-	// Models against the nulls, every metric.
+// aboveNullSection is the models against the nulls, every metric,
+// sentences and table; nil without a null.
+func aboveNullSection(r *Results) *aboveNullView {
+	s := r.Sensitivity
 	if rows := aboveNullRows(r); len(rows) > 0 {
 		an := &aboveNullView{Note: aboveNullNote}
 		for _, x := range s.AboveNull {
 			an.Sentences = append(an.Sentences, x.Sentence)
 		}
 		an.Table = table("tbl-above-null", []string{"metric", "model", "null", "extent", "area (km²)", "common test points", "model", "null", "model minus null", "95% interval", "method", "reading"}, rows)
-		v.AboveNull = an
+		return an
 	}
 
-	// Independence.
-	ind := s.Independence
-	v.IndependenceSentence = ind.Sentence
+	return nil
+}
+
+// independenceSection is the check of the test points' independence from
+// the training points: its sentence (with our cut-offs named), the table
+// of distances and the sorting bias per extent (each nil when not
+// defined).
+func independenceSection(r *Results) (sentence string, dist *htmlTable, sorting *notedTable) {
+	ind := r.Sensitivity.Independence
+	sentence = ind.Sentence
 	if ind.Defined {
-		v.IndependenceSentence += fmt.Sprintf(" The distance of %g cell widths and the %s level are our cut-offs for a quick check, not a published test.", NearCells, pct(NearShareWarn))
+		sentence += fmt.Sprintf(" The distance of %g cell widths and the %s level are our cut-offs for a quick check, not a published test.", NearCells, pct(NearShareWarn))
 	}
 	if ind.Defined {
-		v.Independence = &htmlTable{ID: "tbl-independence", Caption: "Distance from each test point to the nearest training point (km)",
+		dist = &htmlTable{ID: "tbl-independence", Caption: "Distance from each test point to the nearest training point (km)",
 			Head: []string{"n", "min", "lower quartile", "median", "upper quartile", "max", "cell width km", "within km", "share within"},
 			Rows: [][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}}}
 	}
 	if sb := sortingBiasRows(r); len(sb) > 0 {
-		v.SortingBias = &notedTable{Note: sortingBiasNote, Table: htmlTable{ID: "tbl-sorting-bias",
+		sorting = &notedTable{Note: sortingBiasNote, Table: htmlTable{ID: "tbl-sorting-bias",
 			Caption: "Distance to the nearest training point: test points against the extent's cells",
 			Head: []string{"extent", "area (km²)",
 				"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"},
 			Rows: sb}}
 	}
+	return sentence, dist, sorting
+}
 
-	// Where errors fall.
-	rows = nil
+// omittedTable lists, per model and threshold rule, the test records the
+// rule misses.
+func omittedTable(s *Sensitivity) htmlTable {
+	var rows [][]cell
 	for _, o := range s.OmittedPoints {
 		ids := make([]string, len(o.IDs))
 		for i, id := range o.IDs {
@@ -169,8 +203,7 @@ func analysisSection(r *Results) analysisView {
 		}
 		rows = append(rows, []cell{tc(o.Model), tc(thresholdLabel(o.Threshold)), nc(o.Value, 4), ic(o.Count), ic(o.TestPoints), nc(o.Share, 3), tc(idList(ids))})
 	}
-	v.Omitted = table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
-	return v
+	return table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 }
 
 // decompositionSection is the sums-of-squares table and the order of the
