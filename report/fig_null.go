@@ -71,50 +71,11 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		if len(gaps) == 0 {
 			continue
 		}
-		sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
-		// A small horizontal offset per series keeps the bars apart.
-		shift := math.Pow(2, 0.03*float64(i+3*j))
-		xys := make(plotter.XYs, len(gaps))
-		chains := make([]string, len(gaps))
-		var ep struct {
-			plotter.XYs
-			plotter.YErrors
-		}
-		for k, g := range gaps {
-			x := g.AreaKm2 / div * shift
-			xys[k] = plotter.XY{X: x, Y: g.Diff}
-			chains[k] = chainOf[g.Extent]
-			ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: g.Diff})
-			ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
-			lo, hi = math.Min(lo, x), math.Max(hi, x)
-		}
-		dashes := modelDash(i)
-		if j > 0 {
-			dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
-		}
-		ls := lineStyle(modelColor(i), 1, dashes)
-		// A line joins the extents of one nested chain only (chainLines).
-		for _, line := range chainLines(xys, chains) {
-			l, err := plotter.NewLine(line)
-			if err != nil {
-				return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
-			}
-			l.LineStyle = ls
-			p.Add(l)
-		}
-		sc, err := plotter.NewScatter(xys)
+		ls, x0, x1, err := addGapSeries(p, gaps, i, j, div, scale, chainOf)
 		if err != nil {
-			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
+			return nil, nil, err
 		}
-		sc.GlyphStyle = markerStyle(i)
-		sc.GlyphStyle.Radius *= scale
-		eb, err := plotter.NewYErrorBars(ep)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: figure model minus null: %w", err)
-		}
-		eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
-		eb.CapWidth = vg.Points(3) * scale
-		p.Add(sc, eb)
+		lo, hi = math.Min(lo, x0), math.Max(hi, x1)
 		gs := markerStyle(i)
 		items = append(items, legendItem{an.Model + " − " + ModelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
@@ -131,6 +92,61 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	p.X.Min, p.X.Max = lo/1.25, hi*1.25
 	p.X.Tick.Marker = logTicks{W: w - vg.Points(10), Pt: minFontPt}
 	return p, items, nil
+}
+
+// addGapSeries adds to p one model-minus-null series (model i, null j;
+// gaps defined, areas in units of div): a line joining the extents of
+// each nested chain (chainOf), the markers scaled by scale, and the 95%
+// intervals as bars, the series shifted sideways a little so that bars
+// stay apart. It returns the series' line style and the smallest and
+// largest x drawn.
+func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
+	// A small horizontal offset per series keeps the bars apart.
+	shift := math.Pow(2, 0.03*float64(i+3*j))
+	xys := make(plotter.XYs, len(gaps))
+	chains := make([]string, len(gaps))
+	var ep struct {
+		plotter.XYs
+		plotter.YErrors
+	}
+	for k, g := range gaps {
+		x := g.AreaKm2 / div * shift
+		xys[k] = plotter.XY{X: x, Y: g.Diff}
+		chains[k] = chainOf[g.Extent]
+		ep.XYs = append(ep.XYs, plotter.XY{X: x, Y: g.Diff})
+		ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+	}
+	dashes := modelDash(i)
+	if j > 0 {
+		dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
+	}
+	ls = lineStyle(modelColor(i), 1, dashes)
+	// A line joins the extents of one nested chain only (chainLines).
+	for _, line := range chainLines(xys, chains) {
+		l, err := plotter.NewLine(line)
+		if err != nil {
+			return ls, 0, 0, fmt.Errorf("report: figure model minus null: %w", err)
+		}
+		l.LineStyle = ls
+		p.Add(l)
+	}
+	sc, err := plotter.NewScatter(xys)
+	if err != nil {
+		return ls, 0, 0, fmt.Errorf("report: figure model minus null: %w", err)
+	}
+	sc.GlyphStyle = markerStyle(i)
+	sc.GlyphStyle.Radius *= scale
+	eb, err := plotter.NewYErrorBars(ep)
+	if err != nil {
+		return ls, 0, 0, fmt.Errorf("report: figure model minus null: %w", err)
+	}
+	eb.LineStyle = lineStyle(modelColor(i), 0.8, nil)
+	eb.CapWidth = vg.Points(3) * scale
+	p.Add(sc, eb)
+	return ls, lo, hi, nil
 }
 
 // nullZeroGrey draws the line at 0 of the model-minus-null figure.
