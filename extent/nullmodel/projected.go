@@ -274,10 +274,10 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 func (b *projBracketer) needed(i int) bool { return b.need == nil || b.need[i] != 0 }
 
 // lerpOff are the offsets, in cells from a lattice tile's first row (or
-// column), of the lattice points' rows (columns) held per tile: corners
-// (0), quarter points (4) and midpoints (8); offset 16 is the next tile's
-// 0.
-var lerpOff = [3]int{0, 4, tileSide / 2}
+// column), of the lattice points' rows (columns) held per tile (its
+// slots): corners (0), quarter points (4 and 12) and midpoints (8); slot
+// 4, offset 16, is the next tile's first.
+var lerpOff = [4]int{0, 4, 8, 12}
 
 // lerpW holds the weights of quadratic interpolation at k/16, k = 0 to
 // 16, on the nodes 0, 1/2 and 1 (Lagrange: (k-8)(k-16)/128, k(16-k)/64,
@@ -290,9 +290,14 @@ var lerpW = func() (w [tileSide + 1][3]float64) {
 	return w
 }()
 
-// lerpNodeSlot is the lattice slot (within a tile's three, 3 the next
-// tile's first) of node 0, 1/2 and 1 of quadratic interpolation.
-var lerpNodeSlot = [3]int{0, 2, 3}
+// lerpNodeSlot is the lattice slot (see lerpOff) of node 0, 1/2 and 1 of
+// quadratic interpolation.
+var lerpNodeSlot = [3]int{0, 2, 4}
+
+// lerpChecks are the lattice slots (row, column; see lerpOff) of a tile's
+// checks: top (0, 4), bottom (16, 4), left (4, 0), right (4, 16), and
+// inside (4, 4) and (12, 12).
+var lerpChecks = [6][2]int{{0, 1}, {4, 1}, {1, 0}, {1, 4}, {1, 1}, {3, 3}}
 
 // lerpOmega is the ratio of the largest |w(u)| over [0, 1], w(u) = u (u -
 // 1/2) (u - 1) (sqrt(3)/36 at u = 1/2 +- sqrt(3)/6), to |w(1/4)| = 3/64:
@@ -338,7 +343,7 @@ func (b *projBracketer) positions() {
 		}
 	}
 	// The lattice points of those tiles, transformed in one call.
-	sr, scn := 3*nTR+1, 3*nTC+1
+	sr, scn := 4*nTR+1, 4*nTC+1
 	ns := sr * scn
 	if cap(sc.slotLat) < ns {
 		sc.slotLat, sc.slotLon, sc.slotP = make([]float64, ns), make([]float64, ns), make([][3]float64, ns)
@@ -351,8 +356,8 @@ func (b *projBracketer) positions() {
 		if !b.slotHave[s] {
 			b.slotHave[s] = true
 			r, c := s/scn, s%scn
-			sc.qr = append(sc.qr, (tr0+r/3)*tileSide+lerpOff[r%3])
-			sc.qc = append(sc.qc, (tc0+c/3)*tileSide+lerpOff[c%3])
+			sc.qr = append(sc.qr, (tr0+r/4)*tileSide+lerpOff[r%4])
+			sc.qc = append(sc.qc, (tc0+c/4)*tileSide+lerpOff[c%4])
 			sc.qs = append(sc.qs, s)
 		}
 	}
@@ -363,11 +368,11 @@ func (b *projBracketer) positions() {
 			}
 			for _, a := range lerpNodeSlot {
 				for _, c := range lerpNodeSlot {
-					ask((3*ti+a)*scn + 3*tj + c)
+					ask(b.slot(ti, tj, a, c))
 				}
 			}
-			for _, q := range [5][2]int{{0, 1}, {3, 1}, {1, 0}, {1, 3}, {1, 1}} {
-				ask((3*ti+q[0])*scn + 3*tj + q[1])
+			for _, q := range lerpChecks {
+				ask(b.slot(ti, tj, q[0], q[1]))
 			}
 		}
 	}
@@ -412,9 +417,9 @@ func (b *projBracketer) positions() {
 }
 
 // slot returns the lattice slot of tile (ti, tj) of the block (relative to
-// tr0, tc0) at slot row a and slot column c (0 to 3).
+// tr0, tc0) at slot row a and slot column c (0 to 4, see lerpOff).
 func (b *projBracketer) slot(ti, tj, a, c int) int {
-	return (3*ti+a)*(3*b.nTC+1) + 3*tj + c
+	return (4*ti+a)*(4*b.nTC+1) + 4*tj + c
 }
 
 // lerpBound sets nodes to the ECEF positions of the nine nodes of tile
@@ -431,26 +436,29 @@ func (b *projBracketer) lerpBound(ti, tj int, nodes *[3][3][3]float64) float64 {
 			nodes[a][c] = b.slotP[s]
 		}
 	}
-	// The errors of interpolation at the checks: top (0, 4), bottom (16,
-	// 4), left (4, 0), right (4, 16) and inside (4, 4).
-	var errs [5][3]float64
-	for k, q := range [5][4]int{{0, 1, 0, 4}, {3, 1, 16, 4}, {1, 0, 4, 0}, {1, 3, 4, 16}, {1, 1, 4, 4}} {
+	// The errors of interpolation at the checks (lerpChecks).
+	var errs [6][3]float64
+	for k, q := range lerpChecks {
 		s := b.slot(ti, tj, q[0], q[1])
 		if !validLonLat(b.slotLat[s], b.slotLon[s]) {
 			return math.NaN()
 		}
-		p := lerpAt(nodes, q[2], q[3])
+		p := lerpAt(nodes, 4*q[0], 4*q[1])
 		for j := range 3 {
 			errs[k][j] = p[j] - b.slotP[s][j]
 		}
 	}
 	norm := func(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
-	bound := lerpOmega * (max(norm(errs[0]), norm(errs[1])) + max(norm(errs[2]), norm(errs[3])))
-	var miss [3]float64
+	et, eb, el, er := errs[0], errs[1], errs[2], errs[3]
+	bound := lerpOmega * (max(norm(et), norm(eb)) + max(norm(el), norm(er)))
+	// The errors inside as the model predicts them: at (4, 4) and, with
+	// w(3/4) = -w(1/4), at (12, 12).
+	var missA, missB [3]float64
 	for j := range 3 {
-		miss[j] = errs[4][j] - (3*errs[0][j]+errs[1][j])/4 - (3*errs[2][j]+errs[3][j])/4
+		missA[j] = errs[4][j] - ((3*et[j]+eb[j])/4 + (3*el[j]+er[j])/4)
+		missB[j] = errs[5][j] + ((et[j]+3*eb[j])/4 + (el[j]+3*er[j])/4)
 	}
-	if !(norm(miss) <= bound/4+1e-3) {
+	if !(norm(missA) <= bound/4+1e-3 && norm(missB) <= bound/4+1e-3) {
 		return math.NaN()
 	}
 	return lerpSafety*bound + 1e-3
@@ -613,14 +621,14 @@ func (b *projBracketer) latticeSlot(gr, gc int) (int, bool) {
 		}
 		for k, off := range lerpOff {
 			if rel%tileSide == off {
-				return 3*(rel/tileSide) + k, true
+				return 4*(rel/tileSide) + k, true
 			}
 		}
 		return 0, false
 	}
 	a, ok1 := idx(gr, b.tr0, b.nTR)
 	c, ok2 := idx(gc, b.tc0, b.nTC)
-	return a*(3*b.nTC+1) + c, ok1 && ok2
+	return a*(4*b.nTC+1) + c, ok1 && ok2
 }
 
 // tile brackets the needed cells of rows [r0,r1) and columns [c0,c1) of
