@@ -117,73 +117,125 @@ func validLonLat(lat, lon float64) bool {
 	return math.Abs(lat) <= 90 && !math.IsInf(lon, 0) && !math.IsNaN(lon)
 }
 
-// bracketProjected is Bracket on a Field made by New: the cell centres
-// come from its Centres (any grid, one projection per cell), each cell is
-// bracketed from its shortest ECEF chord to a training site, then, where
-// that bracket is too wide, from an exact geodesic measured at the anchor
-// of its tile, and computed exactly where both fail. Every step depends on
-// the cell's centre, the sites and the anchor of its tile on a global
-// lattice, never on the block: a cell's bracket is the same however the
-// grid is cut.
+// bracketProjected is Bracket on a Field made by New or NewPoints: each
+// needed cell gets a position P'_p in ECEF, interpolated from a lattice of
+// centres that Centres (PROJ) gives, with a bound e_p >= |P'_p - P_p| on
+// its distance from the true centre P_p (or P_p itself from Centres, e_p
+// = 0, where the lattice's check fails); it is bracketed from its
+// shortest ECEF chord to a training site, then, where that bracket is too
+// wide, from an exact geodesic measured at the anchor of its tile, and
+// computed exactly, at its true centre, where both fail. Every step
+// depends on the cell, the sites and the tiles of a global lattice, never
+// on the block: a cell's bracket is the same however the grid is cut.
 //
-// Chords. The bracket of cell p is chordBracket(D*), D* = min_k |P_p -
-// P_k| over every site k (P the ECEF positions, projECEF); it is kept when
-// hi - lo <= 2 BracketTol lo and -hi, -lo share their bins (sameBins). The
-// candidates are found as in Distances: the block is walked in tiles of 16
-// x 16 cells, split in four while a tile has no usable centre or more than
-// maxCandidates candidates, down to single cells (any number). For a tile
-// with centre c, rho the largest chordBracket upper end of the chords from
-// c to the tile's needed cells (so rho >= s(c, p), the geodesic, for each
-// of them; Schur's bound, see Bracket) and d1 >= s(c, s_1) the upper end
-// of Index.NearestBounds at c (no geodesic), the sites the index lists
-// within
+// Centres. The grid is cut into the tiles of the global lattice of 16 x
+// 16 cells (rows and columns 16 i to 16 i + 15). A tile's nodes are the
+// cells at rows 16 i + {0, 8, 16} and columns 16 j + {0, 8, 16} (beyond
+// the tile and the grid where need be: Centres gives them), its checks
+// the cells (0, 4), (16, 4), (4, 0), (4, 16), (4, 4) and (12, 12) from its
+// corner; shared points are transformed once per block, all in one call
+// (Points), about 8 per 256 cells. A cell at (16 u, 16 v) from the corner
+// gets the quadratic (Lagrange, tensor product) interpolation P' of the
+// nodes' ECEF positions. For a map F with constant third derivatives
+// over the tile the error is exactly
 //
-//	R = rho + max(d1 + rho, H),  H = chordBracket(min(d1 + rho, chordNarrowMax)) upper end,
+//	P'(u, v) - F(u, v) = -(F_uuu w(u) + F_vvv w(v))/6,  w(u) = u (u - 1/2) (u - 1)
+//
+// (the terms u^2 v, u v^2 and below are interpolated exactly), so its
+// errors E_t, E_b at the top and bottom checks (u = 1/4, where |w| = 3/64)
+// and E_l, E_r at the left and right ones give
+//
+//	|P' - F| <= 1.0264 (max(|E_t|, |E_b|) + max(|E_l|, |E_r|)) =: B
+//
+// (max |w| = sqrt(3)/36 = 1.0264 * 3/64), even with third derivatives
+// that vary linearly across the tile. The inside checks test that model:
+// it predicts the error (3 E_t + E_b)/4 + (3 E_l + E_r)/4 at (4, 4) and,
+// as w(3/4) = -w(1/4), -(E_t + 3 E_b)/4 - (E_l + 3 E_r)/4 at (12, 12); if
+// either is off by more than B/4 + 1 mm, or a node or check has no
+// position, or e below exceeds 1/16 of a floor bin (lerpCap: brackets
+// that wide would cross bin edges often enough that the exact cells cost
+// more than PROJ), every cell of the tile takes its centre from Centres
+// (the tile is decided from its lattice points and the bins alone).
+// Otherwise e_p = 2 B + 1 mm for each cell of the tile: 2 is our own
+// safety factor. The bound is exact for maps whose third derivatives are
+// constant (or linear) over a tile, and checked per tile at two points it
+// did not use; for an arbitrary PROJ operation (a grid shift with kinks,
+// say) it is a practical bound, not a proven one, hence the factor and
+// the fallback. Cells are also assumed to have a position where all of
+// their tile's lattice points do: true when the projection's domain is
+// convex in grid coordinates (the disk of an azimuthal projection, say).
+// On the EPSG:3035 grid of BenchmarkNullVsRaster (2.45 km cells, 39 km
+// tiles) B is at most 2 cm and the true error at most 0.74 B (pyproj);
+// cells of 25 km or more (tiles of 400 km) mostly fail lerpCap. Every
+// bracket below is that of the true centre: with |P'_p - P_p| <= e_p, a
+// chord D' from P'_p to any point is within e_p of the true chord, so a
+// chord bracket is chordBracket(D' - e_p)'s lower end to chordBracket(D'
+// + e_p)'s upper end, and a Taylor bracket (below) takes t in that range
+// and tc within e_p more.
+//
+// Chords. The bracket of cell p is that of D* = min_k |P'_p - P_k| over
+// every site k (P the ECEF positions, projECEF), widened by e_p as said;
+// it is kept when hi - lo <= 2 BracketTol lo and -hi, -lo share their bins
+// (sameBins). The candidates are found as in Distances: the block is
+// walked in tiles of 16 x 16 cells, split in four while a tile has no
+// usable centre or more than maxCandidates candidates, down to single
+// cells (any number). For a tile with centre c (from Centres or the
+// lattice), e the largest e_p of its needed cells, rho the chordBracket
+// upper end of the longest chord from c to a needed cell's P'_p plus e (so
+// rho >= s(c, p), the geodesic to the true centre, for each of them;
+// Schur's bound, see Bracket) and d1 >= s(c, s_1) the upper end of
+// Index.NearestBounds at c (no geodesic), the sites the index lists within
+//
+//	R = rho + max(d1 + rho, H),  H = chordBracket(min(d1 + rho, chordNarrowMax) + 2 e) upper end,
 //
 // of c (Index.Within) hold, for every needed cell p of the tile:
 //
 //   - its geodesic nearest site s*: s(c, s*) <= s(c, p) + s(p, s_1) <=
 //     2 rho + d1 (triangle inequality, as in Distances);
-//   - when D* <= chordNarrowMax, a site q* with the shortest chord D*:
-//     D* <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1 (a chord is
-//     never longer than the geodesic), and chordBracket's upper end grows
-//     with the chord, so s(p, q*) <= H and s(c, q*) <= rho + H.
+//   - when the true shortest chord D is at most chordNarrowMax, a site q*
+//     with the shortest chord D* from P'_p: |P_p - P_q*| <= D* + e_p <=
+//     D + 2 e_p, D <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1
+//     (a chord is never longer than the geodesic), and chordBracket's
+//     upper end grows with the chord, so s(p, q*) <= H and s(c, q*) <=
+//     rho + H.
 //
 // So the shortest chord over the candidates is D* itself (the minimum of
-// the same numbers, bit for bit) whenever D* <= chordNarrowMax, and above
+// the same numbers, bit for bit) whenever D <= chordNarrowMax, and above
 // it both D* and the candidates' minimum give a bracket that is not
-// narrow (see chordNarrowMax). The chords from a cell are taken in
-// increasing order of the site's chord cc from c, stopping once cc - rho
-// (a lower bound on the cell's chord, |P_p - P_c| <= rho) exceeds the
-// shortest so far by 1 m; sites that cannot give any cell of the tile its
-// shortest chord are left out first, as in the latitude-longitude path's
-// chords. A bracket narrower than exactWidth floor bins that crosses a
-// bin edge is not narrowed further: the cell is computed exactly.
+// narrow (see chordNarrowMax); both hold the distance, as the candidates
+// hold s*. The chords from a cell are taken in increasing order of the
+// site's chord cc from c, stopping once cc - rho (a lower bound on the
+// cell's chord, |P'_p - P_c| <= rho) exceeds the shortest so far by 1 m;
+// sites that cannot give any cell of the tile its shortest chord are left
+// out first, as in the latitude-longitude path's chords. A bracket
+// narrower than exactWidth floor bins that crosses a bin edge is not
+// narrowed further: the cell is computed exactly.
 //
 // Anchors. The other cells whose chord bracket fails go to the anchor a of
-// their tile on the global lattice of 16 x 16 cells (rows and columns 16 i
-// to 16 i + 15 of the grid; a is its cell (16 i + 8, 16 j + 8), whose
-// centre Centres gives even outside the block). With t the geodesic from
-// a to the cell p (in [tl, th], the chordBracket of |P_p - P_a|) and u
-// its unit initial direction, the geodesic gamma(s) has its acceleration
-// g(s) normal to the ellipsoid with |g| <= kappa (its normal curvature),
-// and the unit normal N turns at most at rate kappa along it (the shape
-// operator's norm is the largest principal curvature), so with Pi the
-// projection onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s))
-// - N(a)| <= kappa^2 s, and
+// their tile on the global lattice of 16 x 16 cells (a is its cell (16 i
+// + 8, 16 j + 8), a node, whose centre Centres gives even outside the
+// block). With t the geodesic from a to the cell p (in [tl, th], the
+// chord bracket of |P'_p - P_a| widened by e_p) and u its unit initial
+// direction, the geodesic gamma(s) has its acceleration g(s) normal to
+// the ellipsoid with |g| <= kappa (its normal curvature), and the unit
+// normal N turns at most at rate kappa along it (the shape operator's
+// norm is the largest principal curvature), so with Pi the projection
+// onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s)) - N(a)| <=
+// kappa^2 s, and
 //
-//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6 =: e1
+//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6
 //
-// (4 mm at t = 10 km). For a site k with distance f = f_k(a) and azimuth
-// az at a (geodesy.Inverse), the gradient of f_k at a is -v, v = cos(az)
-// north + sin(az) east (the geodetic east and north at a), so t f'(0) =
-// <t u, -v> lies within e1 of tc = <Pi (P_p - P_a), -v>, computed from the
-// ECEF offset alone. Along gamma, the second derivative of f is h (1 -
-// f'^2), h between the Hessian comparison bounds (see Bracket), so it lies
-// in [A, B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of
-// 1 - f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over
-// t in [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then
-// twice from the previous B; so
+// (4 mm at t = 10 km); e1 is that plus e_p. For a site k with distance f
+// = f_k(a) and azimuth az at a (geodesy.Inverse), the gradient of f_k at a
+// is -v, v = cos(az) north + sin(az) east (the geodetic east and north at
+// a), so t f'(0) = <t u, -v> lies within e1 of tc = <Pi (P'_p - P_a), -v>,
+// computed from the ECEF offset alone (a unit vector: P'_p moves tc by at
+// most e_p). Along gamma, the second derivative of f is h (1 - f'^2), h
+// between the Hessian comparison bounds (see Bracket), so it lies in [A,
+// B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of 1 -
+// f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over t in
+// [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then twice
+// from the previous B; so
 //
 //	f_k(p) in [f + tc - e1 + A tl^2/2, f + tc + e1 + B th^2/2],
 //
@@ -205,36 +257,36 @@ func validLonLat(lat, lon float64) bool {
 // pending cell's nearest site (f_{s*}(a) <= s(a, p) + s(p, s_1) <= d(a) +
 // 2 t).
 //
-// Exact cells get Index.Nearest's value bit for bit: the smallest
-// geodesy.Distance(lat_p, lon_p, site) (Nearest's argument order) over the
-// tile's candidates or the anchor's sites (both hold the nearest), taken
-// in increasing order of chord until the chord's lower bound (chordBracket)
-// exceeds the smallest distance so far (such a site and the later ones
-// are farther).
+// Exact cells get Index.Nearest's value bit for bit, at their true centre
+// (from Centres: Points for the interpolated ones, one call per chord
+// tile or anchor): the smallest geodesy.Distance(lat_p, lon_p, site)
+// (Nearest's argument order) over the tile's candidates or the anchor's
+// sites (both hold the nearest), taken in increasing order of chord until
+// the chord's lower bound (chordBracket) exceeds the smallest distance so
+// far (such a site and the later ones are farther).
 //
-// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km)
-// the chords settle 48% of the cells, and the anchors all but 1.3% (4
-// million cells of 2.45 km) or 0.8% (27 million of 0.94 km) of the
-// cells, which are computed exactly; the bounds then cost 490 to 550 CPU
-// ns per cell, 360 to 385 of it in Centres (PROJ), against 1500 to 1700
-// when every cell was computed (BenchmarkNullBoundsProjected in
-// cmd/internal/pass; see README, Performance).
+// Interpolated centres and the outputs. A bracket's midpoint, not only
+// its bins, reaches the outputs: the sorting-bias tally adds it to the
+// millimetre and the preview copies it (see pass.Virtual). So brackets
+// from interpolated centres (and the few more exact cells they bring)
+// move the sorting-bias means and the preview's values in their 9th to
+// 11th digit against brackets from PROJ's centres (the owner accepted
+// it: those means are descriptive, already computed from midpoints);
+// every score is unchanged, since a bracket shares its value's bins and
+// the cells whose exact values the pass needs are computed with Fill, and
+// the outputs stay the same on any worker count and shard split, since a
+// cell's bracket depends on the cell and the global lattice alone.
+// (Field.exactCentres, for tests, takes every centre from Centres.)
 //
-// Why every centre is PROJ's own. A bracket's midpoint, not only its
-// bins, reaches the outputs: the sorting-bias tally adds it to the
-// millimetre and the preview copies it (see pass.Virtual). So a bracket
-// must be the same bit for bit, and so must the centre it comes from:
-// centres interpolated between exactly transformed ones, the brackets
-// widened by the interpolation error, would keep every score but move
-// the sorting-bias means (moving every centre by 1 micrometre, the
-// brackets still holding the exact distances, changed the background
-// means in the 11th digit on four small projected studies, polar and
-// across the antimeridian included). Interpolated centres (exact every
-// 16 cells of a row) would cut the bounds to 200 to 230 CPU ns per cell.
-// Nor is a cheaper exact transform at hand: PROJ's proj_trans_generic on
-// the operation GDAL uses takes about 80% of GDAL's time for the same
-// points (the projection's own inverse is the cost), and GDAL's Web
-// Mercator path differs from PROJ's in the last bits.
+// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km,
+// 4 million cells of 2.45 km) the chords settle 48% of the cells and the
+// anchors all but 1.33% (1.31% with PROJ's centres), computed exactly;
+// the bounds cost about 125 CPU ns per cell against 440 to 460 with a
+// PROJ transform per cell, and 1500 to 1700 when every cell was computed
+// (BenchmarkNullBoundsProjected in cmd/internal/pass; see README,
+// Performance). PROJ's proj_trans_generic on the operation GDAL uses
+// takes about 80% of GDAL's time for the same points, so a cheaper exact
+// transform would not have done it.
 func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
 	sc := projPool.Get().(*projScratch)
@@ -611,6 +663,39 @@ func (b *projBracketer) centre(r, c int) (lat, lon float64) {
 	return la[0], lo[0]
 }
 
+// tileCentre returns the latitude and longitude of a point near the
+// centre of block cell (r, c), the centre of a chord tile: centre's, or,
+// for a needed cell whose centre is interpolated and not a lattice point,
+// those of its interpolated position (ecefLatLon; any point serves, the
+// tile's rho being measured from it), so that split tiles ask nothing of
+// Centres.
+func (b *projBracketer) tileCentre(r, c int) (lat, lon float64) {
+	i := r*b.w + c
+	if b.err[i] > 0 {
+		if s, ok := b.latticeSlot(b.y0+r, b.x0+c); !ok || !b.slotHave[s] {
+			return ecefLatLon([3]float64{b.ex[i], b.ey[i], b.ez[i]})
+		}
+	}
+	return b.centre(r, c)
+}
+
+// ecefLatLon returns the geodetic latitude and longitude (degrees) of the
+// point of the ellipsoid nearest ECEF point p (m), for p near the
+// ellipsoid: to well under a micrometre for p within 1 km of it (three
+// fixed-point steps from the parametric guess).
+func ecefLatLon(p [3]float64) (lat, lon float64) {
+	const deg = 180 / math.Pi
+	e2 := geodesy.Flattening * (2 - geodesy.Flattening)
+	r := math.Hypot(p[0], p[1])
+	phi := math.Atan2(p[2], r*(1-e2))
+	for range 3 {
+		s := math.Sin(phi)
+		n := geodesy.SemiMajor / math.Sqrt(1-e2*s*s)
+		phi = math.Atan2(p[2]+e2*n*s, r)
+	}
+	return phi * deg, math.Atan2(p[1], p[0]) * deg
+}
+
 // latticeSlot returns the block's lattice slot of grid cell (gr, gc), and
 // false when the cell is not a lattice point of the block's tiles.
 func (b *projBracketer) latticeSlot(gr, gc int) (int, bool) {
@@ -647,7 +732,7 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 		return
 	}
 	single := r1-r0 == 1 && c1-c0 == 1
-	clat, clon := b.centre((r0+r1)/2, (c0+c1)/2)
+	clat, clon := b.tileCentre((r0+r1)/2, (c0+c1)/2)
 	if validLonLat(clat, clon) {
 		pc := projECEF(clat, clon)
 		// chordBracket's upper end grows with the chord: that of the

@@ -104,6 +104,9 @@ func TestBracketProjected(t *testing.T) {
 		// column to Centres, or the bound would be too small.
 		{"laea-kink-2km", kinked(-150e3, 160e3, 2000, 52, 10, 25e3, 7e-5), 150, 160, 8, 51, 12, 53, 30, 0.9, 0.25},
 		{"polar-2km", polarGrid(-160e3, 150e3, 2000, -45), 150, 160, -180, 87, 180, 89.5, 30, 0.9, 0.1},
+		// Dense sites: tiles split down to single cells, whose centres
+		// (the chord tiles') come from the interpolated positions.
+		{"laea-dense-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 9, 51.5, 11, 52.5, 3000, 0.5, 0.1},
 		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3, 2},
 		// Cells of 1000 km on a map of nearly the whole sphere: tiles
 		// wider than maxChord.
@@ -307,4 +310,31 @@ func BenchmarkFieldBracketProjected(b *testing.B) {
 	}
 	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
 	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
+}
+
+// TestECEFLatLon checks ecefLatLon against projECEF at random points of
+// the ellipsoid, poles included, and 1 km above and below: the point it
+// returns is within 1e-6 m of the nearest point of the ellipsoid (for the
+// points on it, the point itself).
+func TestECEFLatLon(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for i := range 100000 {
+		lat, lon := 180*r.Float64()-90, 360*r.Float64()-180
+		if i%100 == 0 {
+			lat = math.Copysign(90, lat)
+		}
+		p := projECEF(lat, lon)
+		h := 0.0
+		if i%3 != 0 {
+			h = 2000*r.Float64() - 1000
+		}
+		// Move along the normal (geodetic up) by h.
+		sp, cp := math.Sincos(lat * math.Pi / 180)
+		sl, cl := math.Sincos(lon * math.Pi / 180)
+		q := [3]float64{p[0] + h*cp*cl, p[1] + h*cp*sl, p[2] + h*sp}
+		la, lo := ecefLatLon(q)
+		if d := dist3(projECEF(la, lo), p); !(d <= 1e-6) {
+			t.Fatalf("(%v, %v) at %v m: ecefLatLon gives (%v, %v), %v m away", lat, lon, h, la, lo, d)
+		}
+	}
 }
