@@ -501,7 +501,7 @@ func CellPoints(g *extent.Grid) func(cols, rows []int, lons, lats []float64) {
 // ix: on a latitude-longitude grid the one of nullmodel.NewLonLat,
 // otherwise nullmodel.NewPoints on the cell centres transformed to WGS84
 // (CellCentres and CellPoints: PROJ; its bounds transform a lattice of
-// about 7 cells in 256 and interpolate the others, see
+// about 8 cells in 256 and interpolate the others, see
 // nullmodel.Field.Bracket). The bounds of both let a pass compute few
 // cells exactly (on BenchmarkNullVsRaster's study 1.3% on an EPSG:3035
 // grid), and both give the same values.
