@@ -90,7 +90,7 @@ type projOrder struct {
 
 var projPool = sync.Pool{New: func() any { return new(projScratch) }}
 
-// projBracketer is the state of one Bracket call on a Field made by New.
+// projBracketer is the state of one Bracket call on a Field made by New or NewPoints.
 type projBracketer struct {
 	f          *Field
 	x0, y0     int
