@@ -258,7 +258,7 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // position, and cells not needed, get NaN. A cell's bracket does not
 // depend on the block it is computed in.
 //
-// A Field made by New brackets its cells as bracketProjected says. One made by
+// A Field made by New or NewPoints brackets its cells as bracketProjected says. One made by
 // NewLonLat first brackets each cell from chords. On a global lattice of
 // super-tiles of 15 x 15 cells, with rho >= 1.02 times the longest
 // geodesic from the super-tile's centre to its cells plus 1 m (from the

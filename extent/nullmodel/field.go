@@ -13,19 +13,49 @@ import (
 // and give the same coordinates for a cell whatever the range asked.
 type Centres func(row, c0, c1 int, lons, lats []float64)
 
+// Points fills lons and lats (the length of cols) with the WGS84
+// longitude and latitude (degrees) of the centres of the cells (cols[k],
+// rows[k]), NaN where a centre has no geographic position: for each cell
+// the numbers Centres gives, bit for bit, whatever the other cells asked.
+// It must be safe for concurrent use. Cells may lie outside the grid.
+type Points func(cols, rows []int, lons, lats []float64)
+
 // Field is the distance field of a set of sites (the training points) on a
 // grid whose cell centres Centres gives. It is read-only and safe for
 // concurrent use.
 type Field struct {
 	ix      *geodesy.Index
 	centres Centres
+	points  Points  // nil: from centres, one cell per call
 	ll      *lonLat // set by NewLonLat: the fast path of Bracket
+	// exactCentres makes Bracket take every centre from Centres, as
+	// before interpolated centres (tests compare both).
+	exactCentres bool
 }
 
 // New returns the distance field of the sites of ix on the grid described by
 // centres.
 func New(ix *geodesy.Index, centres Centres) *Field {
 	return &Field{ix: ix, centres: centres}
+}
+
+// NewPoints is New with points, which gives the same centres as centres
+// for scattered cells in one call: Bracket transforms its lattice points
+// and the cells it computes exactly through it (see bracketProjected).
+func NewPoints(ix *geodesy.Index, centres Centres, points Points) *Field {
+	return &Field{ix: ix, centres: centres, points: points}
+}
+
+// at fills lons and lats with the centres of cells (cols[k], rows[k]):
+// Points, or Centres one cell at a time.
+func (f *Field) at(cols, rows []int, lons, lats []float64) {
+	if f.points != nil {
+		f.points(cols, rows, lons, lats)
+		return
+	}
+	for k := range cols {
+		f.centres(rows[k], cols[k], cols[k]+1, lons[k:k+1], lats[k:k+1])
+	}
 }
 
 // tileSide is the side, in cells, of the tiles Distances resolves with one

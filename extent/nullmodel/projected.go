@@ -28,18 +28,31 @@ type projSite struct {
 
 // projScratch holds one projected Bracket call's buffers.
 type projScratch struct {
-	lons, lats []float64
+	lons, lats []float64 // centres from Centres (NaN: not fetched)
 	ex, ey, ez []float64 // ECEF of the needed cells with a position (ex NaN: not bracketed)
+	err        []float64 // bound on the distance of (ex, ey, ez) from the true centre (0: exact)
 	cands      []int
 	sites      []projSite // the tile's candidates by chord from its centre
 	near       []projSite // those that can give a cell its shortest chord
 	order      []projOrder
-	fetchA     []int // per block row: the columns [fetchA, fetchZ) have their centres
-	fetchZ     []int
 	clo, chi   []float64 // the chord bracket of the cells left to the anchors
 	pend       []bool    // per block cell: left to the anchors
 	anchor     []projAnchor
 	asites     []projSite // the anchor's measured sites, for exact cells
+	tileE      []float64  // per lattice tile of the block: its interpolation bound (NaN: exact centres)
+	slotLat    []float64  // the block's lattice points (see positions)
+	slotLon    []float64
+	slotP      [][3]float64
+	slotHave   []bool
+	qc, qr, qs []int // a transform's cells (and slots)
+	qlon, qlat []float64
+	later      []projLater // cells to compute at their exact centres
+}
+
+// projLater is a cell queued for flushExact.
+type projLater struct {
+	i       int
+	nearest bool
 }
 
 // chordSites sets sc.sites to the sites of sc.cands with their ECEF
@@ -77,16 +90,24 @@ type projOrder struct {
 
 var projPool = sync.Pool{New: func() any { return new(projScratch) }}
 
-// projBracketer is the state of one Bracket call on a Field made by New.
+// projBracketer is the state of one Bracket call on a Field made by New or NewPoints.
 type projBracketer struct {
 	f          *Field
 	x0, y0     int
 	w, h       int
+	need       []uint64
 	lons, lats []float64
 	ex, ey, ez []float64
+	err        []float64
 	lo, hi     []float64
 	sc         *projScratch
 	bins       bracketer // only its bins: sameBins
+	// The block's lattice tiles: (tr0, tc0) the first, nTR x nTC of them;
+	// their lattice points by slot (see positions).
+	tr0, tc0, nTR, nTC int
+	slotLat, slotLon   []float64
+	slotP              [][3]float64
+	slotHave           []bool
 }
 
 // validLonLat reports whether Index.Nearest measures a point at (lat,
@@ -96,73 +117,125 @@ func validLonLat(lat, lon float64) bool {
 	return math.Abs(lat) <= 90 && !math.IsInf(lon, 0) && !math.IsNaN(lon)
 }
 
-// bracketProjected is Bracket on a Field made by New: the cell centres
-// come from its Centres (any grid, one projection per cell), each cell is
-// bracketed from its shortest ECEF chord to a training site, then, where
-// that bracket is too wide, from an exact geodesic measured at the anchor
-// of its tile, and computed exactly where both fail. Every step depends on
-// the cell's centre, the sites and the anchor of its tile on a global
-// lattice, never on the block: a cell's bracket is the same however the
-// grid is cut.
+// bracketProjected is Bracket on a Field made by New or NewPoints: each
+// needed cell gets a position P'_p in ECEF, interpolated from a lattice of
+// centres that Centres (PROJ) gives, with a bound e_p >= |P'_p - P_p| on
+// its distance from the true centre P_p (or P_p itself from Centres, e_p
+// = 0, where the lattice's check fails); it is bracketed from its
+// shortest ECEF chord to a training site, then, where that bracket is too
+// wide, from an exact geodesic measured at the anchor of its tile, and
+// computed exactly, at its true centre, where both fail. Every step
+// depends on the cell, the sites and the tiles of a global lattice, never
+// on the block: a cell's bracket is the same however the grid is cut.
 //
-// Chords. The bracket of cell p is chordBracket(D*), D* = min_k |P_p -
-// P_k| over every site k (P the ECEF positions, projECEF); it is kept when
-// hi - lo <= 2 BracketTol lo and -hi, -lo share their bins (sameBins). The
-// candidates are found as in Distances: the block is walked in tiles of 16
-// x 16 cells, split in four while a tile has no usable centre or more than
-// maxCandidates candidates, down to single cells (any number). For a tile
-// with centre c, rho the largest chordBracket upper end of the chords from
-// c to the tile's needed cells (so rho >= s(c, p), the geodesic, for each
-// of them; Schur's bound, see Bracket) and d1 >= s(c, s_1) the upper end
-// of Index.NearestBounds at c (no geodesic), the sites the index lists
-// within
+// Centres. The grid is cut into the tiles of the global lattice of 16 x
+// 16 cells (rows and columns 16 i to 16 i + 15). A tile's nodes are the
+// cells at rows 16 i + {0, 8, 16} and columns 16 j + {0, 8, 16} (beyond
+// the tile and the grid where need be: Centres gives them), its checks
+// the cells (0, 4), (16, 4), (4, 0), (4, 16), (4, 4) and (12, 12) from its
+// corner; shared points are transformed once per block, all in one call
+// (Points), about 8 per 256 cells. A cell at (16 u, 16 v) from the corner
+// gets the quadratic (Lagrange, tensor product) interpolation P' of the
+// nodes' ECEF positions. For a map F with constant third derivatives
+// over the tile the error is exactly
 //
-//	R = rho + max(d1 + rho, H),  H = chordBracket(min(d1 + rho, chordNarrowMax)) upper end,
+//	P'(u, v) - F(u, v) = -(F_uuu w(u) + F_vvv w(v))/6,  w(u) = u (u - 1/2) (u - 1)
+//
+// (the terms u^2 v, u v^2 and below are interpolated exactly), so its
+// errors E_t, E_b at the top and bottom checks (u = 1/4, where |w| = 3/64)
+// and E_l, E_r at the left and right ones give
+//
+//	|P' - F| <= 1.0264 (max(|E_t|, |E_b|) + max(|E_l|, |E_r|)) =: B
+//
+// (max |w| = sqrt(3)/36 = 1.0264 * 3/64), even with third derivatives
+// that vary linearly across the tile. The inside checks test that model:
+// it predicts the error (3 E_t + E_b)/4 + (3 E_l + E_r)/4 at (4, 4) and,
+// as w(3/4) = -w(1/4), -(E_t + 3 E_b)/4 - (E_l + 3 E_r)/4 at (12, 12); if
+// either is off by more than B/4 + 1 mm, or a node or check has no
+// position, or e below exceeds 1/16 of a floor bin (lerpCap: brackets
+// that wide would cross bin edges often enough that the exact cells cost
+// more than PROJ), every cell of the tile takes its centre from Centres
+// (the tile is decided from its lattice points and the bins alone).
+// Otherwise e_p = 2 B + 1 mm for each cell of the tile: 2 is our own
+// safety factor. The bound is exact for maps whose third derivatives are
+// constant (or linear) over a tile, and checked per tile at two points it
+// did not use; for an arbitrary PROJ operation (a grid shift with kinks,
+// say) it is a practical bound, not a proven one, hence the factor and
+// the fallback. Cells are also assumed to have a position where all of
+// their tile's lattice points do: true when the projection's domain is
+// convex in grid coordinates (the disk of an azimuthal projection, say).
+// On the EPSG:3035 grid of BenchmarkNullVsRaster (2.45 km cells, 39 km
+// tiles) B is at most 2 cm and the true error at most 0.74 B (pyproj);
+// cells of 25 km or more (tiles of 400 km) mostly fail lerpCap. Every
+// bracket below is that of the true centre: with |P'_p - P_p| <= e_p, a
+// chord D' from P'_p to any point is within e_p of the true chord, so a
+// chord bracket is chordBracket(D' - e_p)'s lower end to chordBracket(D'
+// + e_p)'s upper end, and a Taylor bracket (below) takes t in that range
+// and tc within e_p more.
+//
+// Chords. The bracket of cell p is that of D* = min_k |P'_p - P_k| over
+// every site k (P the ECEF positions, projECEF), widened by e_p as said;
+// it is kept when hi - lo <= 2 BracketTol lo and -hi, -lo share their bins
+// (sameBins). The candidates are found as in Distances: the block is
+// walked in tiles of 16 x 16 cells, split in four while a tile has no
+// usable centre or more than maxCandidates candidates, down to single
+// cells (any number). For a tile with centre c (from Centres or the
+// lattice), e the largest e_p of its needed cells, rho the chordBracket
+// upper end of the longest chord from c to a needed cell's P'_p plus e (so
+// rho >= s(c, p), the geodesic to the true centre, for each of them;
+// Schur's bound, see Bracket) and d1 >= s(c, s_1) the upper end of
+// Index.NearestBounds at c (no geodesic), the sites the index lists within
+//
+//	R = rho + max(d1 + rho, H),  H = chordBracket(min(d1 + rho, chordNarrowMax) + 2 e) upper end,
 //
 // of c (Index.Within) hold, for every needed cell p of the tile:
 //
 //   - its geodesic nearest site s*: s(c, s*) <= s(c, p) + s(p, s_1) <=
 //     2 rho + d1 (triangle inequality, as in Distances);
-//   - when D* <= chordNarrowMax, a site q* with the shortest chord D*:
-//     D* <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1 (a chord is
-//     never longer than the geodesic), and chordBracket's upper end grows
-//     with the chord, so s(p, q*) <= H and s(c, q*) <= rho + H.
+//   - when the true shortest chord D is at most chordNarrowMax, a site q*
+//     with the shortest chord D* from P'_p: |P_p - P_q*| <= D* + e_p <=
+//     D + 2 e_p, D <= |P_p - P_s*| <= s(p, s*) <= s(p, s_1) <= rho + d1
+//     (a chord is never longer than the geodesic), and chordBracket's
+//     upper end grows with the chord, so s(p, q*) <= H and s(c, q*) <=
+//     rho + H.
 //
 // So the shortest chord over the candidates is D* itself (the minimum of
-// the same numbers, bit for bit) whenever D* <= chordNarrowMax, and above
+// the same numbers, bit for bit) whenever D <= chordNarrowMax, and above
 // it both D* and the candidates' minimum give a bracket that is not
-// narrow (see chordNarrowMax). The chords from a cell are taken in
-// increasing order of the site's chord cc from c, stopping once cc - rho
-// (a lower bound on the cell's chord, |P_p - P_c| <= rho) exceeds the
-// shortest so far by 1 m; sites that cannot give any cell of the tile its
-// shortest chord are left out first, as in the latitude-longitude path's
-// chords. A bracket narrower than exactWidth floor bins that crosses a
-// bin edge is not narrowed further: the cell is computed exactly.
+// narrow (see chordNarrowMax); both hold the distance, as the candidates
+// hold s*. The chords from a cell are taken in increasing order of the
+// site's chord cc from c, stopping once cc - rho (a lower bound on the
+// cell's chord, |P'_p - P_c| <= rho) exceeds the shortest so far by 1 m;
+// sites that cannot give any cell of the tile its shortest chord are left
+// out first, as in the latitude-longitude path's chords. A bracket
+// narrower than exactWidth floor bins that crosses a bin edge is not
+// narrowed further: the cell is computed exactly.
 //
 // Anchors. The other cells whose chord bracket fails go to the anchor a of
-// their tile on the global lattice of 16 x 16 cells (rows and columns 16 i
-// to 16 i + 15 of the grid; a is its cell (16 i + 8, 16 j + 8), whose
-// centre Centres gives even outside the block). With t the geodesic from
-// a to the cell p (in [tl, th], the chordBracket of |P_p - P_a|) and u
-// its unit initial direction, the geodesic gamma(s) has its acceleration
-// g(s) normal to the ellipsoid with |g| <= kappa (its normal curvature),
-// and the unit normal N turns at most at rate kappa along it (the shape
-// operator's norm is the largest principal curvature), so with Pi the
-// projection onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s))
-// - N(a)| <= kappa^2 s, and
+// their tile on the global lattice of 16 x 16 cells (a is its cell (16 i
+// + 8, 16 j + 8), a node, whose centre Centres gives even outside the
+// block). With t the geodesic from a to the cell p (in [tl, th], the
+// chord bracket of |P'_p - P_a| widened by e_p) and u its unit initial
+// direction, the geodesic gamma(s) has its acceleration g(s) normal to
+// the ellipsoid with |g| <= kappa (its normal curvature), and the unit
+// normal N turns at most at rate kappa along it (the shape operator's
+// norm is the largest principal curvature), so with Pi the projection
+// onto the tangent plane at a, |Pi g(s)| <= kappa |N(gamma(s)) - N(a)| <=
+// kappa^2 s, and
 //
-//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6 =: e1
+//	|Pi (P_p - P_a) - t u| = |int_0^t (t - s) Pi g(s) ds| <= kappa^2 t^3 / 6
 //
-// (4 mm at t = 10 km). For a site k with distance f = f_k(a) and azimuth
-// az at a (geodesy.Inverse), the gradient of f_k at a is -v, v = cos(az)
-// north + sin(az) east (the geodetic east and north at a), so t f'(0) =
-// <t u, -v> lies within e1 of tc = <Pi (P_p - P_a), -v>, computed from the
-// ECEF offset alone. Along gamma, the second derivative of f is h (1 -
-// f'^2), h between the Hessian comparison bounds (see Bracket), so it lies
-// in [A, B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of
-// 1 - f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over
-// t in [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then
-// twice from the previous B; so
+// (4 mm at t = 10 km); e1 is that plus e_p. For a site k with distance f
+// = f_k(a) and azimuth az at a (geodesy.Inverse), the gradient of f_k at a
+// is -v, v = cos(az) north + sin(az) east (the geodetic east and north at
+// a), so t f'(0) = <t u, -v> lies within e1 of tc = <Pi (P'_p - P_a), -v>,
+// computed from the ECEF offset alone (a unit vector: P'_p moves tc by at
+// most e_p). Along gamma, the second derivative of f is h (1 - f'^2), h
+// between the Hessian comparison bounds (see Bracket), so it lies in [A,
+// B] = [h_lo(f + th) q1, q2 / (f - th)], q1 and q2 the extremes of 1 -
+// f'^2 for f' in [cl, ch + th B] ([cl, ch] the range of tc +- e1 over t in
+// [tl, th]; f' only grows since A >= 0), B first with q2 = 1, then twice
+// from the previous B; so
 //
 //	f_k(p) in [f + tc - e1 + A tl^2/2, f + tc + e1 + B th^2/2],
 //
@@ -184,36 +257,36 @@ func validLonLat(lat, lon float64) bool {
 // pending cell's nearest site (f_{s*}(a) <= s(a, p) + s(p, s_1) <= d(a) +
 // 2 t).
 //
-// Exact cells get Index.Nearest's value bit for bit: the smallest
-// geodesy.Distance(lat_p, lon_p, site) (Nearest's argument order) over the
-// tile's candidates or the anchor's sites (both hold the nearest), taken
-// in increasing order of chord until the chord's lower bound (chordBracket)
-// exceeds the smallest distance so far (such a site and the later ones
-// are farther).
+// Exact cells get Index.Nearest's value bit for bit, at their true centre
+// (from Centres: Points for the interpolated ones, one call per chord
+// tile or anchor): the smallest geodesy.Distance(lat_p, lon_p, site)
+// (Nearest's argument order) over the tile's candidates or the anchor's
+// sites (both hold the nearest), taken in increasing order of chord until
+// the chord's lower bound (chordBracket) exceeds the smallest distance so
+// far (such a site and the later ones are farther).
 //
-// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km)
-// the chords settle 48% of the cells, and the anchors all but 1.3% (4
-// million cells of 2.45 km) or 0.8% (27 million of 0.94 km) of the
-// cells, which are computed exactly; the bounds then cost 490 to 550 CPU
-// ns per cell, 360 to 385 of it in Centres (PROJ), against 1500 to 1700
-// when every cell was computed (BenchmarkNullBoundsProjected in
-// cmd/internal/pass; see README, Performance).
+// Interpolated centres and the outputs. A bracket's midpoint, not only
+// its bins, reaches the outputs: the sorting-bias tally adds it to the
+// millimetre and the preview copies it (see pass.Virtual). So brackets
+// from interpolated centres (and the few more exact cells they bring)
+// move the sorting-bias means and the preview's values in their 9th to
+// 11th digit against brackets from PROJ's centres (the owner accepted
+// it: those means are descriptive, already computed from midpoints);
+// every score is unchanged, since a bracket shares its value's bins and
+// the cells whose exact values the pass needs are computed with Fill, and
+// the outputs stay the same on any worker count and shard split, since a
+// cell's bracket depends on the cell and the global lattice alone.
+// (Field.exactCentres, for tests, takes every centre from Centres.)
 //
-// Why every centre is PROJ's own. A bracket's midpoint, not only its
-// bins, reaches the outputs: the sorting-bias tally adds it to the
-// millimetre and the preview copies it (see pass.Virtual). So a bracket
-// must be the same bit for bit, and so must the centre it comes from:
-// centres interpolated between exactly transformed ones, the brackets
-// widened by the interpolation error, would keep every score but move
-// the sorting-bias means (moving every centre by 1 micrometre, the
-// brackets still holding the exact distances, changed the background
-// means in the 11th digit on four small projected studies, polar and
-// across the antimeridian included). Interpolated centres (exact every
-// 16 cells of a row) would cut the bounds to 200 to 230 CPU ns per cell.
-// Nor is a cheaper exact transform at hand: PROJ's proj_trans_generic on
-// the operation GDAL uses takes about 80% of GDAL's time for the same
-// points (the projection's own inverse is the cost), and GDAL's Web
-// Mercator path differs from PROJ's in the last bits.
+// On BenchmarkNullVsRaster's study on an EPSG:3035 grid (6000 x 4000 km,
+// 4 million cells of 2.45 km) the chords settle 48% of the cells and the
+// anchors all but 1.33% (1.31% with PROJ's centres), computed exactly;
+// the bounds cost about 125 CPU ns per cell against 440 to 460 with a
+// PROJ transform per cell, and 1500 to 1700 when every cell was computed
+// (BenchmarkNullBoundsProjected in cmd/internal/pass; see README,
+// Performance). PROJ's proj_trans_generic on the operation GDAL uses
+// takes about 80% of GDAL's time for the same points, so a cheaper exact
+// transform would not have done it.
 func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, lo, hi []float64) {
 	n := w * h
 	sc := projPool.Get().(*projScratch)
@@ -221,46 +294,22 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 	if cap(sc.lons) < n {
 		sc.lons, sc.lats = make([]float64, n), make([]float64, n)
 		sc.ex, sc.ey, sc.ez = make([]float64, n), make([]float64, n), make([]float64, n)
+		sc.err = make([]float64, n)
 	}
-	lons, lats := sc.lons[:n], sc.lats[:n]
-	// Centres (a projection per cell, most of the cost) only from the
-	// first to the last needed cell of each row.
-	if cap(sc.fetchA) < h {
-		sc.fetchA, sc.fetchZ = make([]int, h), make([]int, h)
-	}
-	fetchA, fetchZ := sc.fetchA[:h], sc.fetchZ[:h]
-	for y := range h {
-		a, z := 0, w
-		if need != nil {
-			for a < w && need[y*w+a] == 0 {
-				a++
-			}
-			for z > a && need[y*w+z-1] == 0 {
-				z--
-			}
-		}
-		fetchA[y], fetchZ[y] = a, z
-		if a < z {
-			f.centres(y0+y, x0+a, x0+z, lons[y*w+a:y*w+z], lats[y*w+a:y*w+z])
-		}
-	}
-	ex, ey, ez := sc.ex[:n], sc.ey[:n], sc.ez[:n]
 	if cap(sc.pend) < n {
 		sc.pend, sc.clo, sc.chi = make([]bool, n), make([]float64, n), make([]float64, n)
 	}
 	pend := sc.pend[:n]
 	clear(pend)
-	for i := range n {
-		lo[i], hi[i] = math.NaN(), math.NaN()
-		ex[i] = math.NaN()
-		if (need == nil || need[i] != 0) && validLonLat(lats[i], lons[i]) { // needed: fetched
-			p := projECEF(lats[i], lons[i])
-			ex[i], ey[i], ez[i] = p[0], p[1], p[2]
-		}
-	}
-	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, lons: lons, lats: lats, ex: ex, ey: ey, ez: ez, lo: lo, hi: hi, sc: sc,
+	b := projBracketer{f: f, x0: x0, y0: y0, w: w, h: h, need: need, lons: sc.lons[:n], lats: sc.lats[:n],
+		ex: sc.ex[:n], ey: sc.ey[:n], ez: sc.ez[:n], err: sc.err[:n], lo: lo, hi: hi, sc: sc,
 		bins: bracketer{bins: bins, cellLo: math.NaN(), cellHi: math.NaN(), quickBins: quickBins{scale: bins.FloorScale()}, binW: 1 / bins.FloorScale()}}
 	b.bins.setEdges()
+	for i := range n {
+		lo[i], hi[i] = math.NaN(), math.NaN()
+		b.ex[i], b.lats[i], b.err[i] = math.NaN(), math.NaN(), 0
+	}
+	b.positions()
 	for r0 := 0; r0 < h; r0 += tileSide {
 		for c0 := 0; c0 < w; c0 += tileSide {
 			b.tile(r0, min(r0+tileSide, h), c0, min(c0+tileSide, w))
@@ -273,18 +322,398 @@ func (f *Field) bracketProjected(x0, y0, w, h int, need []uint64, bins Binner, l
 	}
 }
 
+// needed reports whether block cell i is needed.
+func (b *projBracketer) needed(i int) bool { return b.need == nil || b.need[i] != 0 }
+
+// lerpOff are the offsets, in cells from a lattice tile's first row (or
+// column), of the lattice points' rows (columns) held per tile (its
+// slots): corners (0), quarter points (4 and 12) and midpoints (8); slot
+// 4, offset 16, is the next tile's first.
+var lerpOff = [4]int{0, 4, 8, 12}
+
+// lerpW holds the weights of quadratic interpolation at k/16, k = 0 to
+// 16, on the nodes 0, 1/2 and 1 (Lagrange: (k-8)(k-16)/128, k(16-k)/64,
+// k(k-8)/128, all exact in binary).
+var lerpW = func() (w [tileSide + 1][3]float64) {
+	for k := range w {
+		x := float64(k)
+		w[k] = [3]float64{(x - 8) * (x - 16) / 128, x * (16 - x) / 64, x * (x - 8) / 128}
+	}
+	return w
+}()
+
+// lerpNodeSlot is the lattice slot (see lerpOff) of node 0, 1/2 and 1 of
+// quadratic interpolation.
+var lerpNodeSlot = [3]int{0, 2, 4}
+
+// lerpChecks are the lattice slots (row, column; see lerpOff) of a tile's
+// checks: top (0, 4), bottom (16, 4), left (4, 0), right (4, 16), and
+// inside (4, 4) and (12, 12).
+var lerpChecks = [6][2]int{{0, 1}, {4, 1}, {1, 0}, {1, 4}, {1, 1}, {3, 3}}
+
+// lerpOmega is the ratio of the largest |w(u)| over [0, 1], w(u) = u (u -
+// 1/2) (u - 1) (sqrt(3)/36 at u = 1/2 +- sqrt(3)/6), to |w(1/4)| = 3/64:
+// 64 sqrt(3)/108, rounded up.
+const lerpOmega = 1.02641
+
+// lerpSafety is our factor on the interpolation error a tile's lattice
+// points predict (see bracketProjected).
+const lerpSafety = 2
+
+// lerpCap is the largest interpolation bound, in floor bins, of a tile
+// whose centres are interpolated (our choice): wider brackets would cross
+// bin edges often enough that computing those cells exactly costs more
+// than transforming the tile's centres.
+const lerpCap = 1.0 / 16
+
+// positions sets the ECEF position (ex, ey, ez) and its error bound err
+// of every needed cell of the block: per tile of the global 16 x 16
+// lattice, interpolated from the tile's lattice points when the tile's
+// check passes (see bracketProjected), otherwise from Centres (latitude
+// and longitude in lats and lons, err 0). A cell with no position keeps
+// ex NaN.
+func (b *projBracketer) positions() {
+	sc := b.sc
+	tr0, tc0 := floorDiv(b.y0, tileSide), floorDiv(b.x0, tileSide)
+	nTR, nTC := floorDiv(b.y0+b.h-1, tileSide)-tr0+1, floorDiv(b.x0+b.w-1, tileSide)-tc0+1
+	b.tr0, b.tc0, b.nTR, b.nTC = tr0, tc0, nTR, nTC
+	// Which tiles hold a needed cell.
+	nt := nTR * nTC
+	if cap(sc.tileE) < nt {
+		sc.tileE = make([]float64, nt)
+	}
+	tileE := sc.tileE[:nt]
+	for t := range tileE {
+		tileE[t] = math.Inf(1) // no needed cell
+	}
+	for y := range b.h {
+		ti := floorDiv(b.y0+y, tileSide) - tr0
+		for x := range b.w {
+			if b.needed(y*b.w + x) {
+				tileE[ti*nTC+floorDiv(b.x0+x, tileSide)-tc0] = math.NaN()
+			}
+		}
+	}
+	// The lattice points of those tiles, transformed in one call.
+	sr, scn := 4*nTR+1, 4*nTC+1
+	ns := sr * scn
+	if cap(sc.slotLat) < ns {
+		sc.slotLat, sc.slotLon, sc.slotP = make([]float64, ns), make([]float64, ns), make([][3]float64, ns)
+		sc.slotHave = make([]bool, ns)
+	}
+	b.slotLat, b.slotLon, b.slotP, b.slotHave = sc.slotLat[:ns], sc.slotLon[:ns], sc.slotP[:ns], sc.slotHave[:ns]
+	clear(b.slotHave)
+	sc.qc, sc.qr, sc.qs = sc.qc[:0], sc.qr[:0], sc.qs[:0]
+	ask := func(s int) {
+		if !b.slotHave[s] {
+			b.slotHave[s] = true
+			r, c := s/scn, s%scn
+			sc.qr = append(sc.qr, (tr0+r/4)*tileSide+lerpOff[r%4])
+			sc.qc = append(sc.qc, (tc0+c/4)*tileSide+lerpOff[c%4])
+			sc.qs = append(sc.qs, s)
+		}
+	}
+	for ti := range nTR {
+		for tj := range nTC {
+			if !math.IsNaN(tileE[ti*nTC+tj]) {
+				continue
+			}
+			for _, a := range lerpNodeSlot {
+				for _, c := range lerpNodeSlot {
+					ask(b.slot(ti, tj, a, c))
+				}
+			}
+			for _, q := range lerpChecks {
+				ask(b.slot(ti, tj, q[0], q[1]))
+			}
+		}
+	}
+	if k := len(sc.qs); k > 0 {
+		if cap(sc.qlon) < k {
+			sc.qlon, sc.qlat = make([]float64, k), make([]float64, k)
+		}
+		lons, lats := sc.qlon[:k], sc.qlat[:k]
+		b.f.at(sc.qc, sc.qr, lons, lats)
+		for j, s := range sc.qs {
+			b.slotLat[s], b.slotLon[s] = lats[j], lons[j]
+			if validLonLat(lats[j], lons[j]) {
+				b.slotP[s] = projECEF(lats[j], lons[j])
+			} else {
+				b.slotP[s] = [3]float64{math.NaN(), math.NaN(), math.NaN()}
+			}
+		}
+	}
+	// Each tile's mode, then its cells.
+	capE := lerpCap * b.bins.binW
+	for ti := range nTR {
+		for tj := range nTC {
+			t := ti*nTC + tj
+			if !math.IsNaN(tileE[t]) {
+				continue
+			}
+			var nodes [3][3][3]float64
+			e := math.NaN()
+			if !b.f.exactCentres {
+				e = b.lerpBound(ti, tj, &nodes)
+			}
+			if !(e <= capE) {
+				e = math.NaN()
+			}
+			tileE[t] = e
+			if !math.IsNaN(e) {
+				b.lerpCells(ti, tj, &nodes, e)
+			}
+		}
+	}
+	b.fetchExact(tileE)
+}
+
+// slot returns the lattice slot of tile (ti, tj) of the block (relative to
+// tr0, tc0) at slot row a and slot column c (0 to 4, see lerpOff).
+func (b *projBracketer) slot(ti, tj, a, c int) int {
+	return (4*ti+a)*(4*b.nTC+1) + 4*tj + c
+}
+
+// lerpBound sets nodes to the ECEF positions of the nine nodes of tile
+// (ti, tj) and returns the bound e on the distance from an interpolated
+// centre to the true one (see bracketProjected), or NaN when a lattice
+// point has no position or the check fails.
+func (b *projBracketer) lerpBound(ti, tj int, nodes *[3][3][3]float64) float64 {
+	for a, sa := range lerpNodeSlot {
+		for c, scol := range lerpNodeSlot {
+			s := b.slot(ti, tj, sa, scol)
+			if !validLonLat(b.slotLat[s], b.slotLon[s]) {
+				return math.NaN()
+			}
+			nodes[a][c] = b.slotP[s]
+		}
+	}
+	// The errors of interpolation at the checks (lerpChecks).
+	var errs [6][3]float64
+	for k, q := range lerpChecks {
+		s := b.slot(ti, tj, q[0], q[1])
+		if !validLonLat(b.slotLat[s], b.slotLon[s]) {
+			return math.NaN()
+		}
+		p := lerpAt(nodes, 4*q[0], 4*q[1])
+		for j := range 3 {
+			errs[k][j] = p[j] - b.slotP[s][j]
+		}
+	}
+	norm := func(v [3]float64) float64 { return math.Sqrt(v[0]*v[0] + v[1]*v[1] + v[2]*v[2]) }
+	et, eb, el, er := errs[0], errs[1], errs[2], errs[3]
+	bound := lerpOmega * (max(norm(et), norm(eb)) + max(norm(el), norm(er)))
+	// The errors inside as the model predicts them: at (4, 4) and, with
+	// w(3/4) = -w(1/4), at (12, 12).
+	var missA, missB [3]float64
+	for j := range 3 {
+		missA[j] = errs[4][j] - ((3*et[j]+eb[j])/4 + (3*el[j]+er[j])/4)
+		missB[j] = errs[5][j] + ((et[j]+3*eb[j])/4 + (el[j]+3*er[j])/4)
+	}
+	if !(norm(missA) <= bound/4+1e-3 && norm(missB) <= bound/4+1e-3) {
+		return math.NaN()
+	}
+	return lerpSafety*bound + 1e-3
+}
+
+// lerpAt returns the quadratic interpolation of nodes at row kr and column
+// kc (0 to 16) of the tile, with the same operations as lerpCells.
+func lerpAt(nodes *[3][3][3]float64, kr, kc int) [3]float64 {
+	wv, wu := &lerpW[kr], &lerpW[kc]
+	var p [3]float64
+	for j := range 3 {
+		c0 := wv[0]*nodes[0][0][j] + wv[1]*nodes[1][0][j] + wv[2]*nodes[2][0][j]
+		c1 := wv[0]*nodes[0][1][j] + wv[1]*nodes[1][1][j] + wv[2]*nodes[2][1][j]
+		c2 := wv[0]*nodes[0][2][j] + wv[1]*nodes[1][2][j] + wv[2]*nodes[2][2][j]
+		p[j] = wu[0]*c0 + wu[1]*c1 + wu[2]*c2
+	}
+	return p
+}
+
+// lerpCells sets the interpolated positions, and err e, of the needed
+// cells of the block in tile (ti, tj).
+func (b *projBracketer) lerpCells(ti, tj int, nodes *[3][3][3]float64, e float64) {
+	gr0, gc0 := (b.tr0+ti)*tileSide, (b.tc0+tj)*tileSide
+	r0, r1 := max(gr0-b.y0, 0), min(gr0+tileSide-b.y0, b.h)
+	c0, c1 := max(gc0-b.x0, 0), min(gc0+tileSide-b.x0, b.w)
+	for r := r0; r < r1; r++ {
+		wv := &lerpW[b.y0+r-gr0]
+		var col [3][3]float64 // per node column: the row's interpolation
+		for k := range 3 {
+			for j := range 3 {
+				col[k][j] = wv[0]*nodes[0][k][j] + wv[1]*nodes[1][k][j] + wv[2]*nodes[2][k][j]
+			}
+		}
+		for c := c0; c < c1; c++ {
+			i := r*b.w + c
+			if !b.needed(i) {
+				continue
+			}
+			wu := &lerpW[b.x0+c-gc0]
+			b.ex[i] = wu[0]*col[0][0] + wu[1]*col[1][0] + wu[2]*col[2][0]
+			b.ey[i] = wu[0]*col[0][1] + wu[1]*col[1][1] + wu[2]*col[2][1]
+			b.ez[i] = wu[0]*col[0][2] + wu[1]*col[1][2] + wu[2]*col[2][2]
+			b.err[i] = e
+		}
+	}
+}
+
+// fetchExact sets, from Centres, the position of the needed cells of the
+// block in tiles whose centres are not interpolated (tileE NaN): per block
+// row, one call per run of such tiles, from its first to its last needed
+// cell.
+func (b *projBracketer) fetchExact(tileE []float64) {
+	for y := range b.h {
+		ti := floorDiv(b.y0+y, tileSide) - b.tr0
+		x := 0
+		for x < b.w {
+			tj := floorDiv(b.x0+x, tileSide) - b.tc0
+			if !math.IsNaN(tileE[ti*b.nTC+tj]) {
+				x = (b.tc0+tj+1)*tileSide - b.x0
+				continue
+			}
+			// The run of exact tiles from x.
+			z := x
+			for z < b.w && math.IsNaN(tileE[ti*b.nTC+floorDiv(b.x0+z, tileSide)-b.tc0]) {
+				z = min((floorDiv(b.x0+z, tileSide)+1)*tileSide-b.x0, b.w)
+			}
+			a, e := x, z
+			for a < e && !b.needed(y*b.w+a) {
+				a++
+			}
+			for e > a && !b.needed(y*b.w+e-1) {
+				e--
+			}
+			if a < e {
+				b.f.centres(b.y0+y, b.x0+a, b.x0+e, b.lons[y*b.w+a:y*b.w+e], b.lats[y*b.w+a:y*b.w+e])
+				for c := a; c < e; c++ {
+					if i := y*b.w + c; b.needed(i) && validLonLat(b.lats[i], b.lons[i]) {
+						p := projECEF(b.lats[i], b.lons[i])
+						b.ex[i], b.ey[i], b.ez[i] = p[0], p[1], p[2]
+					}
+				}
+			}
+			x = z
+		}
+	}
+}
+
+// exactLater queues block cell i, whose centre is interpolated, to be
+// computed at its exact centre by flushExact: from the sites given there,
+// or with a nearest-site query (nearest).
+func (b *projBracketer) exactLater(i int, nearest bool) {
+	b.sc.later = append(b.sc.later, projLater{i: i, nearest: nearest})
+}
+
+// flushExact transforms the centres of the queued cells (one call) and
+// computes each exactly, as Distances does: from sites, which hold its
+// nearest site, or with a nearest-site query; a cell with no position gets
+// NaN.
+func (b *projBracketer) flushExact(sites []projSite) {
+	sc := b.sc
+	k := len(sc.later)
+	if k == 0 {
+		return
+	}
+	sc.qc, sc.qr = sc.qc[:0], sc.qr[:0]
+	for _, l := range sc.later {
+		sc.qr = append(sc.qr, b.y0+l.i/b.w)
+		sc.qc = append(sc.qc, b.x0+l.i%b.w)
+	}
+	if cap(sc.qlon) < k {
+		sc.qlon, sc.qlat = make([]float64, k), make([]float64, k)
+	}
+	lons, lats := sc.qlon[:k], sc.qlat[:k]
+	b.f.at(sc.qc, sc.qr, lons, lats)
+	for j, l := range sc.later {
+		i := l.i
+		b.lats[i], b.lons[i], b.err[i] = lats[j], lons[j], 0
+		if !validLonLat(lats[j], lons[j]) {
+			b.lo[i], b.hi[i] = math.NaN(), math.NaN()
+			continue
+		}
+		p := projECEF(lats[j], lons[j])
+		b.ex[i], b.ey[i], b.ez[i] = p[0], p[1], p[2]
+		var d float64
+		if l.nearest {
+			_, d = b.f.ix.Nearest(lats[j], lons[j], 0)
+		} else {
+			d = b.exact(i, sites)
+		}
+		b.lo[i], b.hi[i] = d, d
+	}
+	sc.later = sc.later[:0]
+}
+
 // centre returns the latitude and longitude of the centre of cell (r, c)
 // of the block (block rows and columns; it may lie outside the block):
-// those fetched for the block, or else from Centres for that cell alone
-// (the same numbers: see Centres).
+// those fetched for the block or of its lattice points, or else from
+// Centres for that cell alone (the same numbers: see Centres).
 func (b *projBracketer) centre(r, c int) (lat, lon float64) {
-	if r >= 0 && r < b.h && c >= b.sc.fetchA[r] && c < b.sc.fetchZ[r] {
-		i := r*b.w + c
-		return b.lats[i], b.lons[i]
+	if r >= 0 && r < b.h && c >= 0 && c < b.w {
+		if i := r*b.w + c; !math.IsNaN(b.lats[i]) {
+			return b.lats[i], b.lons[i]
+		}
+	}
+	if s, ok := b.latticeSlot(b.y0+r, b.x0+c); ok && b.slotHave[s] {
+		return b.slotLat[s], b.slotLon[s]
 	}
 	var lo, la [1]float64
 	b.f.centres(b.y0+r, b.x0+c, b.x0+c+1, lo[:], la[:])
 	return la[0], lo[0]
+}
+
+// tileCentre returns the latitude and longitude of a point near the
+// centre of block cell (r, c), the centre of a chord tile: centre's, or,
+// for a needed cell whose centre is interpolated and not a lattice point,
+// those of its interpolated position (ecefLatLon; any point serves, the
+// tile's rho being measured from it), so that split tiles ask nothing of
+// Centres.
+func (b *projBracketer) tileCentre(r, c int) (lat, lon float64) {
+	i := r*b.w + c
+	if b.err[i] > 0 {
+		if s, ok := b.latticeSlot(b.y0+r, b.x0+c); !ok || !b.slotHave[s] {
+			return ecefLatLon([3]float64{b.ex[i], b.ey[i], b.ez[i]})
+		}
+	}
+	return b.centre(r, c)
+}
+
+// ecefLatLon returns the geodetic latitude and longitude (degrees) of the
+// point of the ellipsoid nearest ECEF point p (m), for p near the
+// ellipsoid: to well under a micrometre for p within 1 km of it (three
+// fixed-point steps from the parametric guess).
+func ecefLatLon(p [3]float64) (lat, lon float64) {
+	const deg = 180 / math.Pi
+	e2 := geodesy.Flattening * (2 - geodesy.Flattening)
+	r := math.Hypot(p[0], p[1])
+	phi := math.Atan2(p[2], r*(1-e2))
+	for range 3 {
+		s := math.Sin(phi)
+		n := geodesy.SemiMajor / math.Sqrt(1-e2*s*s)
+		phi = math.Atan2(p[2]+e2*n*s, r)
+	}
+	return phi * deg, math.Atan2(p[1], p[0]) * deg
+}
+
+// latticeSlot returns the block's lattice slot of grid cell (gr, gc), and
+// false when the cell is not a lattice point of the block's tiles.
+func (b *projBracketer) latticeSlot(gr, gc int) (int, bool) {
+	idx := func(g, t0, nt int) (int, bool) {
+		rel := g - t0*tileSide
+		if rel < 0 || rel > nt*tileSide {
+			return 0, false
+		}
+		for k, off := range lerpOff {
+			if rel%tileSide == off {
+				return 4*(rel/tileSide) + k, true
+			}
+		}
+		return 0, false
+	}
+	a, ok1 := idx(gr, b.tr0, b.nTR)
+	c, ok2 := idx(gc, b.tc0, b.nTC)
+	return a*(4*b.nTC+1) + c, ok1 && ok2
 }
 
 // tile brackets the needed cells of rows [r0,r1) and columns [c0,c1) of
@@ -303,12 +732,13 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 		return
 	}
 	single := r1-r0 == 1 && c1-c0 == 1
-	clat, clon := b.centre((r0+r1)/2, (c0+c1)/2)
+	clat, clon := b.tileCentre((r0+r1)/2, (c0+c1)/2)
 	if validLonLat(clat, clon) {
 		pc := projECEF(clat, clon)
 		// chordBracket's upper end grows with the chord: that of the
-		// longest chord bounds every cell's geodesic from c.
-		d2 := 0.0
+		// longest chord, plus the largest error of a cell's position,
+		// bounds every cell's geodesic from c.
+		d2, emax := 0.0, 0.0
 		for r := r0; r < r1; r++ {
 			for c := c0; c < c1; c++ {
 				i := r*b.w + c
@@ -317,14 +747,15 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 				}
 				dx, dy, dz := b.ex[i]-pc[0], b.ey[i]-pc[1], b.ez[i]-pc[2]
 				d2 = max(d2, dx*dx+dy*dy+dz*dz)
+				emax = max(emax, b.err[i])
 			}
 		}
-		_, rho := chordBracket(math.Sqrt(d2))
+		_, rho := chordBracket(math.Sqrt(d2) + emax)
 		if !math.IsInf(rho, 1) {
 			ix := b.f.ix
 			_, d1 := ix.NearestBounds(clat, clon, 0)
 			reach := d1 + rho
-			_, hc := chordBracket(min(reach, chordNarrowMax))
+			_, hc := chordBracket(min(reach, chordNarrowMax) + 2*emax)
 			b.sc.cands = ix.Within(clat, clon, rho+max(reach, hc), b.sc.cands[:0])
 			if k := len(b.sc.cands); single || k > 0 && k <= maxCandidates {
 				b.cells(r0, r1, c0, c1, pc, rho)
@@ -386,7 +817,13 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 				dx, dy, dz := px-st.p[0], py-st.p[1], pz-st.p[2]
 				d2 = min(d2, dx*dx+dy*dy+dz*dz)
 			}
-			lo, hi := chordBracket(math.Sqrt(d2))
+			d := math.Sqrt(d2)
+			lo, hi := chordBracket(d)
+			if e := b.err[i]; e > 0 {
+				// The true centre's shortest chord is within e of d.
+				lo, _ = chordBracket(d - e)
+				_, hi = chordBracket(d + e)
+			}
 			if b.bins.quick(lo, hi) || b.bins.settled(lo, hi) {
 				b.lo[i], b.hi[i] = lo, hi
 				continue
@@ -396,10 +833,15 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 				sc.pend[i], sc.clo[i], sc.chi[i] = true, lo, hi
 				continue
 			}
-			d := b.exact(i, sites)
+			if b.err[i] > 0 {
+				b.exactLater(i, false)
+				continue
+			}
+			d = b.exact(i, sites)
 			b.lo[i], b.hi[i] = d, d
 		}
 	}
+	b.flushExact(sites)
 }
 
 // exact returns the distance of block cell i to its nearest site among
@@ -461,7 +903,7 @@ func (b *projBracketer) anchored(tr, tc int) {
 	pa := projECEF(alat, alon)
 	// The largest upper bound on a pending cell's geodesic from the anchor.
 	// (Cells beyond maxChord, with no upper end, are computed exactly.)
-	d2 := 0.0
+	dmax := 0.0
 	for r := r0; r < r1; r++ {
 		for c := c0; c < c1; c++ {
 			i := r*b.w + c
@@ -469,12 +911,12 @@ func (b *projBracketer) anchored(tr, tc int) {
 				continue
 			}
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
-			if e := dx*dx + dy*dy + dz*dz; e <= maxChord*maxChord {
-				d2 = max(d2, e)
+			if d := math.Sqrt(dx*dx+dy*dy+dz*dz) + b.err[i]; d <= maxChord {
+				dmax = max(dmax, d)
 			}
 		}
 	}
-	_, tmax := chordBracket(math.Sqrt(d2))
+	_, tmax := chordBracket(dmax)
 	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
 	b.taylorCells(r0, r1, c0, c1, alat, alon, pa)
 }
@@ -490,12 +932,17 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 		for r := r0; r < r1; r++ {
 			for c := c0; c < c1; c++ {
 				if i := r*b.w + c; sc.pend[i] {
+					sc.pend[i] = false
+					if b.err[i] > 0 {
+						b.exactLater(i, true)
+						continue
+					}
 					_, d := ix.Nearest(b.lats[i], b.lons[i], 0)
 					b.lo[i], b.hi[i] = d, d
-					sc.pend[i] = false
 				}
 			}
 		}
+		b.flushExact(nil)
 		return
 	}
 	_, d1 := ix.NearestBounds(alat, alon, 0)
@@ -552,17 +999,30 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 			}
 			sc.pend[i] = false
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
-			tl, th := chordBracket(math.Sqrt(dx*dx + dy*dy + dz*dz))
+			dc := math.Sqrt(dx*dx + dy*dy + dz*dz)
+			tl, th := chordBracket(dc)
+			ep := b.err[i]
+			if ep > 0 {
+				// The true centre's chord is within ep of dc.
+				tl, _ = chordBracket(dc - ep)
+				_, th = chordBracket(dc + ep)
+			}
 			if math.IsInf(th, 1) {
 				// Beyond maxChord from the anchor (huge cells): not within
 				// T of it, so the anchor's sites need not hold its nearest.
+				if ep > 0 {
+					b.exactLater(i, true)
+					continue
+				}
 				_, d := b.f.ix.Nearest(b.lats[i], b.lons[i], 0)
 				b.lo[i], b.hi[i] = d, d
 				continue
 			}
 			wn := dx*north[0] + dy*north[1] + dz*north[2]
 			we := dx*east[0] + dy*east[1] + dz*east[2]
-			e1 := k2*th*th*th + 1e-6
+			// tc below is within ep of the true centre's (a projection on
+			// a unit vector).
+			e1 := k2*th*th*th + 1e-6 + ep
 			lo, hi := math.Inf(1), math.Inf(1)
 			for q := range sc.anchor {
 				m := &sc.anchor[q]
@@ -584,10 +1044,15 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 				b.lo[i], b.hi[i] = lo, hi
 				continue
 			}
+			if ep > 0 {
+				b.exactLater(i, false)
+				continue
+			}
 			d := b.exact(i, sc.asites)
 			b.lo[i], b.hi[i] = d, d
 		}
 	}
+	b.flushExact(sc.asites)
 }
 
 // projTaylor returns bounds on the distance to site m from a cell at

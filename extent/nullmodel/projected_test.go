@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sync/atomic"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -19,12 +20,21 @@ const sphereR = 6371000.0
 // the inverse): a cell farther than 2R from the centre has no position
 // (NaN).
 func laeaGrid(x0, y0, cell, lat1, lon0 float64) Centres {
+	return laeaMap(x0, y0, cell, lat1, lon0, nil)
+}
+
+// laeaMap is laeaGrid with the grid's x moved by fx (nil: not moved)
+// before the projection's inverse.
+func laeaMap(x0, y0, cell, lat1, lon0 float64, fx func(float64) float64) Centres {
 	const rad = math.Pi / 180
 	s1, c1 := math.Sincos(lat1 * rad)
 	return func(row, ca, cb int, lons, lats []float64) {
 		y := y0 - (float64(row)+0.5)*cell
 		for c := ca; c < cb; c++ {
 			x := x0 + (float64(c)+0.5)*cell
+			if fx != nil {
+				x = fx(x)
+			}
 			rho := math.Hypot(x, y)
 			if rho == 0 {
 				lons[c-ca], lats[c-ca] = lon0, lat1
@@ -57,15 +67,20 @@ func polarGrid(x0, y0, cell, lon0 float64) Centres {
 // TestBracketProjected checks Bracket on Fields made by New (the projected
 // path) against Distances and Index.Nearest on grids whose tiles are not
 // latitude-longitude rectangles: Lambert azimuthal equal-area with 2 km and
-// 50 km cells, one whose corner lies beyond the projection's domain (cells
-// with no position), and polar stereographic grids around the pole, with
-// 25 km cells and with 1000 km cells (tiles wider than maxChord). Every
-// bracket holds the exact distance, shares its bins at both ends and is
-// within 2 BracketTol; a degenerate bracket equals Nearest at the cell
-// centre bit for bit; cells with no position and cells not needed are NaN;
-// and the brackets are the same however the grid is cut into blocks (so
-// however it is cut into tiles), with and without a need mask. Most cells
-// near the sites must be bracketed (not exact), or the path is not tested.
+// 50 km cells, one across the antimeridian, one whose corner lies beyond
+// the projection's domain (cells with no position), one whose domain ends
+// inside it (a half-plane), one with a kink in a tile, and polar
+// stereographic grids around the pole, with 2 km, 25 km and 1000 km cells
+// (tiles wider than maxChord). Every bracket holds the exact distance,
+// shares its bins at both ends and is within 2 BracketTol; a degenerate
+// bracket equals Nearest at the cell centre bit for bit; cells with no
+// position and cells not needed are NaN; and the brackets are the same
+// however the grid is cut into blocks (so however it is cut into tiles),
+// with and without a need mask. Most cells near the sites must be
+// bracketed (not exact), or the path is not tested; and on the grids of 2
+// km cells most centres must be interpolated (Centres asked for at most
+// maxAsked of the cells, in blocks of 240), or interpolation is not
+// tested. The same holds with every centre from Centres (exactCentres).
 func TestBracketProjected(t *testing.T) {
 	cases := []struct {
 		name           string
@@ -74,14 +89,28 @@ func TestBracketProjected(t *testing.T) {
 		sw, ss, se, sn float64 // box of the sites
 		sites          int
 		minBracketed   float64 // share of cells
+		maxAsked       float64 // share of cells
 	}{
-		{"laea-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 8, 51, 12, 53, 30, 0.9},
-		{"laea-50km", laeaGrid(-3000e3, 2200e3, 50000, 52, 10), 120, 90, 0, 45, 20, 58, 40, 0.1},
-		{"laea-edge", laeaGrid(11.5e6, 3.0e6, 40000, 52, 10), 80, 150, 150, -70, 175, -40, 10, 0},
-		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3},
+		{"laea-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 8, 51, 12, 53, 30, 0.9, 0.1},
+		{"laea-50km", laeaGrid(-3000e3, 2200e3, 50000, 52, 10), 120, 90, 0, 45, 20, 58, 40, 0.1, 2},
+		{"laea-edge", laeaGrid(11.5e6, 3.0e6, 40000, 52, 10), 80, 150, 150, -70, 175, -40, 10, 0, 2},
+		{"laea-antimeridian-2km", laeaGrid(-150e3, 160e3, 2000, 60, 180), 150, 160, 177, 59, 183, 61, 30, 0.9, 0.1},
+		// A domain that ends at x = 61 km (cells beyond it have no
+		// position), inside a tile: that tile column takes its centres
+		// from Centres.
+		{"laea-halfplane-2km", halfPlane(laeaGrid(-150e3, 160e3, 2000, 52, 10), -150e3, 2000, 61e3), 150, 160, 8, 51, 12, 53, 30, 0.6, 0.5},
+		// A kink 7 cm per km steeper beyond x = 25 km (column 87.5), in
+		// the second half of a tile: the checks must send that tile
+		// column to Centres, or the bound would be too small.
+		{"laea-kink-2km", kinked(-150e3, 160e3, 2000, 52, 10, 25e3, 7e-5), 150, 160, 8, 51, 12, 53, 30, 0.9, 0.25},
+		{"polar-2km", polarGrid(-160e3, 150e3, 2000, -45), 150, 160, -180, 87, 180, 89.5, 30, 0.9, 0.1},
+		// Dense sites: tiles split down to single cells, whose centres
+		// (the chord tiles') come from the interpolated positions.
+		{"laea-dense-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 9, 51.5, 11, 52.5, 3000, 0.5, 0.1},
+		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3, 2},
 		// Cells of 1000 km on a map of nearly the whole sphere: tiles
 		// wider than maxChord.
-		{"polar-1000km", polarGrid(-12e6, 12e6, 1000e3, 0), 24, 24, -180, -60, 180, 80, 20, 0},
+		{"polar-1000km", polarGrid(-12e6, 12e6, 1000e3, 0), 24, 24, -180, -60, 180, 80, 20, 0, 2},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -90,74 +119,133 @@ func TestBracketProjected(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			f := New(ix, tc.cen)
-			n := tc.w * tc.h
-			want := make([]float64, n)
-			f.Distances(0, 0, tc.w, tc.h, nil, want)
-			// Nearest at each centre, independently of Distances.
-			clon, clat := make([]float64, tc.w), make([]float64, tc.w)
-			nan := 0
-			for r := range tc.h {
-				tc.cen(r, 0, tc.w, clon, clat)
-				for c := range tc.w {
-					_, d := ix.Nearest(clat[c], clon[c], 0)
-					if v := want[r*tc.w+c]; v != d && !(math.IsNaN(v) && math.IsNaN(d)) {
-						t.Fatalf("cell %d,%d: Distances %v, Nearest %v", c, r, v, d)
-					}
-					if math.IsNaN(d) {
-						nan++
-					}
-				}
+			var asked atomic.Int64
+			cen := func(row, c0, c1 int, lons, lats []float64) {
+				asked.Add(int64(c1 - c0))
+				tc.cen(row, c0, c1, lons, lats)
 			}
-			if tc.name == "laea-edge" && (nan == 0 || nan == n) {
-				t.Fatalf("%d of %d cells with no position: the case must have some, not all", nan, n)
-			}
-			layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
-			// Two need masks: 1 cell in 11 left out, and a sparse one
-			// (rows 3 to 5 of every 6 and a column in 4 left out), whose
-			// rows and tiles start and end at cells not needed.
-			dense, sparse := make([]uint64, n), make([]uint64, n)
-			for i := range dense {
-				if i%11 != 3 {
-					dense[i] = 1
-				}
-				if r, c := i/tc.w, i%tc.w; (r/3)%2 == 0 && c%4 != 1 {
-					sparse[i] = 1
-				}
-			}
-			var ref []float64
-			for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}, {1, 1}} {
-				for m, need := range [][]uint64{nil, dense, sparse} {
-					masked := need != nil
-					lo, hi := make([]float64, n), make([]float64, n)
-					walkTiles(tc.w, tc.h, bs[0], bs[1], need, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
-						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
-					})
-					exact := checkBrackets(t, fmt.Sprintf("blocks %v mask %d", bs, m), want, lo, hi, need, layout)
-					valid := n - nan
-					if !masked {
-						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, valid, 100*float64(exact)/float64(valid))
-						if got := float64(valid-exact) / float64(valid); got < tc.minBracketed {
-							t.Fatalf("blocks %v: %.1f%% of the cells bracketed, want at least %.0f%%", bs, 100*got, 100*tc.minBracketed)
-						}
-					}
-					key := append(append([]float64{}, lo...), hi...)
-					if ref == nil {
-						ref = key
-						continue
-					}
-					for i := range key {
-						j := i % n
-						if masked && need[j] == 0 {
-							continue
-						}
-						if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
-							t.Fatalf("blocks %v mask %d: bracket of cell %d differs from the one-block cut", bs, m, j)
-						}
+			for _, exactCentres := range []bool{false, true} {
+				f := New(ix, cen)
+				f.exactCentres = exactCentres
+				t.Run(fmt.Sprintf("exactCentres=%v", exactCentres), func(t *testing.T) { bracketProjectedCase(t, f, tc.cen, tc.w, tc.h, tc.name, tc.minBracketed) })
+				if !exactCentres {
+					n := tc.w * tc.h
+					lo, hi := make([]float64, 240*240), make([]float64, 240*240)
+					want := make([]float64, n)
+					f.Distances(0, 0, tc.w, tc.h, nil, want)
+					layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
+					asked.Store(0)
+					bracketBlocks(f, tc.w, tc.h, layout, lo, hi)
+					t.Logf("Centres asked for %d of %d cells", asked.Load(), n)
+					if got := float64(asked.Load()) / float64(n); got > tc.maxAsked {
+						t.Errorf("Centres asked for %.1f%% of the cells, want at most %.0f%%", 100*got, 100*tc.maxAsked)
 					}
 				}
 			}
 		})
+	}
+}
+
+// halfPlane returns cen with no position (NaN) for the cells whose centre
+// lies beyond x = xmax, on a grid whose columns start at x0 with cells of
+// side cell.
+func halfPlane(cen Centres, x0, cell, xmax float64) Centres {
+	return func(row, ca, cb int, lons, lats []float64) {
+		cen(row, ca, cb, lons, lats)
+		for c := ca; c < cb; c++ {
+			if x0+(float64(c)+0.5)*cell > xmax {
+				lons[c-ca], lats[c-ca] = math.NaN(), math.NaN()
+			}
+		}
+	}
+}
+
+// kinked returns laeaGrid(x0, y0, cell, lat1, lon0) with every x beyond
+// xk moved by s (x - xk): a map whose derivative jumps at xk.
+func kinked(x0, y0, cell, lat1, lon0, xk, s float64) Centres {
+	return laeaMap(x0, y0, cell, lat1, lon0, func(x float64) float64 {
+		if x > xk {
+			x += s * (x - xk)
+		}
+		return x
+	})
+}
+
+// bracketProjectedCase runs TestBracketProjected's checks of f, whose
+// Centres is cen, on a w x h grid.
+func bracketProjectedCase(t *testing.T, f *Field, cen Centres, w, h int, name string, minBracketed float64) {
+	tc := struct {
+		name         string
+		cen          Centres
+		w, h         int
+		minBracketed float64
+	}{name, cen, w, h, minBracketed}
+	ix := f.ix
+	n := tc.w * tc.h
+	want := make([]float64, n)
+	f.Distances(0, 0, tc.w, tc.h, nil, want)
+	// Nearest at each centre, independently of Distances.
+	clon, clat := make([]float64, tc.w), make([]float64, tc.w)
+	nan := 0
+	for r := range tc.h {
+		tc.cen(r, 0, tc.w, clon, clat)
+		for c := range tc.w {
+			_, d := ix.Nearest(clat[c], clon[c], 0)
+			if v := want[r*tc.w+c]; v != d && !(math.IsNaN(v) && math.IsNaN(d)) {
+				t.Fatalf("cell %d,%d: Distances %v, Nearest %v", c, r, v, d)
+			}
+			if math.IsNaN(d) {
+				nan++
+			}
+		}
+	}
+	if tc.name == "laea-edge" && (nan == 0 || nan == n) {
+		t.Fatalf("%d of %d cells with no position: the case must have some, not all", nan, n)
+	}
+	layout := testLayout(t, want, f.FarthestBound(tc.w, tc.h, 16))
+	// Two need masks: 1 cell in 11 left out, and a sparse one
+	// (rows 3 to 5 of every 6 and a column in 4 left out), whose
+	// rows and tiles start and end at cells not needed.
+	dense, sparse := make([]uint64, n), make([]uint64, n)
+	for i := range dense {
+		if i%11 != 3 {
+			dense[i] = 1
+		}
+		if r, c := i/tc.w, i%tc.w; (r/3)%2 == 0 && c%4 != 1 {
+			sparse[i] = 1
+		}
+	}
+	var ref []float64
+	for _, bs := range [][2]int{{tc.w, tc.h}, {64, 48}, {45, 30}, {17, 23}, {1, 1}} {
+		for m, need := range [][]uint64{nil, dense, sparse} {
+			masked := need != nil
+			lo, hi := make([]float64, n), make([]float64, n)
+			walkTiles(tc.w, tc.h, bs[0], bs[1], need, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
+				f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
+			})
+			exact := checkBrackets(t, fmt.Sprintf("blocks %v mask %d", bs, m), want, lo, hi, need, layout)
+			valid := n - nan
+			if !masked {
+				t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, valid, 100*float64(exact)/float64(valid))
+				if got := float64(valid-exact) / float64(valid); got < tc.minBracketed {
+					t.Fatalf("blocks %v: %.1f%% of the cells bracketed, want at least %.0f%%", bs, 100*got, 100*tc.minBracketed)
+				}
+			}
+			key := append(append([]float64{}, lo...), hi...)
+			if ref == nil {
+				ref = key
+				continue
+			}
+			for i := range key {
+				j := i % n
+				if masked && need[j] == 0 {
+					continue
+				}
+				if key[i] != ref[i] && !(math.IsNaN(key[i]) && math.IsNaN(ref[i])) {
+					t.Fatalf("blocks %v mask %d: bracket of cell %d differs from the one-block cut", bs, m, j)
+				}
+			}
+		}
 	}
 }
 
@@ -222,4 +310,31 @@ func BenchmarkFieldBracketProjected(b *testing.B) {
 	}
 	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
 	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
+}
+
+// TestECEFLatLon checks ecefLatLon against projECEF at random points of
+// the ellipsoid, poles included, and 1 km above and below: the point it
+// returns is within 1e-6 m of the nearest point of the ellipsoid (for the
+// points on it, the point itself).
+func TestECEFLatLon(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for i := range 100000 {
+		lat, lon := 180*r.Float64()-90, 360*r.Float64()-180
+		if i%100 == 0 {
+			lat = math.Copysign(90, lat)
+		}
+		p := projECEF(lat, lon)
+		h := 0.0
+		if i%3 != 0 {
+			h = 2000*r.Float64() - 1000
+		}
+		// Move along the normal (geodetic up) by h.
+		sp, cp := math.Sincos(lat * math.Pi / 180)
+		sl, cl := math.Sincos(lon * math.Pi / 180)
+		q := [3]float64{p[0] + h*cp*cl, p[1] + h*cp*sl, p[2] + h*sp}
+		la, lo := ecefLatLon(q)
+		if d := dist3(projECEF(la, lo), p); !(d <= 1e-6) {
+			t.Fatalf("(%v, %v) at %v m: ecefLatLon gives (%v, %v), %v m away", lat, lon, h, la, lo, d)
+		}
+	}
 }

@@ -483,19 +483,34 @@ func CellCentres(g *extent.Grid) func(row, c0, c1 int, lons, lats []float64) {
 	}
 }
 
+// CellPoints returns a function that fills lons and lats with the WGS84
+// coordinates of the centres of cells (cols[k], rows[k]) of g, in one
+// transformation: for each cell the numbers of CellCentres (the same
+// transformation of the same grid coordinates, point by point).
+func CellPoints(g *extent.Grid) func(cols, rows []int, lons, lats []float64) {
+	return func(cols, rows []int, lons, lats []float64) {
+		lons, lats = lons[:len(cols)], lats[:len(cols)]
+		for k, c := range cols {
+			lons[k], lats[k] = g.Centre(c, rows[k])
+		}
+		g.ToLonLat(lons, lats, lons, lats)
+	}
+}
+
 // DistanceNull returns the distance-only null's field on g for the sites of
 // ix: on a latitude-longitude grid the one of nullmodel.NewLonLat,
-// otherwise nullmodel.New on the cell centres transformed to WGS84
-// (CellCentres: PROJ, one transform per cell, which is most of its cost).
-// The bounds of both let a pass compute few cells exactly (on
-// BenchmarkNullVsRaster's study 1.3% on an EPSG:3035 grid), and both give
-// the same values.
+// otherwise nullmodel.NewPoints on the cell centres transformed to WGS84
+// (CellCentres and CellPoints: PROJ; its bounds transform a lattice of
+// about 8 cells in 256 and interpolate the others, see
+// nullmodel.Field.Bracket). The bounds of both let a pass compute few
+// cells exactly (on BenchmarkNullVsRaster's study 1.3% on an EPSG:3035
+// grid), and both give the same values.
 func DistanceNull(g *extent.Grid, ix *geodesy.Index) *nullmodel.Field {
 	if g.Geographic {
 		gt := g.GeoTransform
 		return nullmodel.NewLonLat(ix, gt[0], gt[1], gt[3], gt[5])
 	}
-	return nullmodel.New(ix, CellCentres(g))
+	return nullmodel.NewPoints(ix, CellCentres(g), CellPoints(g))
 }
 
 // farthestStep is the tile side (cells) of the one-query-per-tile bound on

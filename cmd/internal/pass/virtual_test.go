@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"testing"
 
 	"github.com/airbusgeo/godal"
@@ -57,15 +58,25 @@ func nullOn(g *extent.Grid, ix *geodesy.Index) (*extent.Grid, *Virtual, *nullmod
 // 2 km in EPSG:3035 (Lambert azimuthal equal-area Europe, around 13 E, 48
 // N), five training sites inside it, the same two-member family.
 func nullSetupProjected(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+	return nullSetupOn(t, "EPSG:3035", 4.5e6, 2.9e6, 2000)
+}
+
+// nullSetupOn is nullSetupProjected on a grid of 300 x 200 cells of side
+// cell (m) in crs with top-left corner (x0, y0), the five sites at the
+// same places relative to the corner.
+func nullSetupOn(t *testing.T, crs string, x0, y0, cell float64) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
 	t.Helper()
-	g, err := extent.NewGrid(300, 200, [6]float64{4.5e6, 2000, 0, 2.9e6, 0, -2000}, "EPSG:3035")
+	g, err := extent.NewGrid(300, 200, [6]float64{x0, cell, 0, y0, 0, -cell}, crs)
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(g.Close)
-	xs := []float64{4.55e6, 4.62e6, 4.75e6, 4.9e6, 5.02e6}
-	ys := []float64{2.85e6, 2.6e6, 2.75e6, 2.55e6, 2.82e6}
+	xs := []float64{0.05e6, 0.12e6, 0.25e6, 0.4e6, 0.52e6}
+	ys := []float64{-0.05e6, -0.3e6, -0.15e6, -0.35e6, -0.08e6}
 	lons, lats := make([]float64, 5), make([]float64, 5)
+	for i := range xs {
+		xs[i], ys[i] = x0+xs[i]*cell/2000, y0+ys[i]*cell/2000
+	}
 	g.ToLonLat(xs, ys, lons, lats)
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {
@@ -121,11 +132,22 @@ func writeFloat64(t *testing.T, g *extent.Grid, path string, vals []float64) {
 // bit for bit, and every accumulator: area at each layout value, range,
 // cells, area, and all metrics, the Boyce index included), for 1 and 2
 // workers, although the GeoTIFF's blocks (64 x 64) differ from the
-// virtual's (240 x 240); on a latitude-longitude grid (nullSetup) and on a
-// projected one (nullSetupProjected).
+// virtual's (240 x 240); on a latitude-longitude grid (nullSetup) and on
+// projected ones (nullSetupOn, whose bounds interpolate most cell
+// centres): EPSG:3035, EPSG:3413 around the north pole, EPSG:3832 across
+// the antimeridian, UTM zone 33N and EPSG:3857 at 60 N.
 func TestVirtualEqualsRaster(t *testing.T) {
+	on := func(crs string, x0, y0, cell float64) func(*testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+		return func(t *testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family) {
+			return nullSetupOn(t, crs, x0, y0, cell)
+		}
+	}
 	for name, setup := range map[string]func(*testing.T) (*extent.Grid, *Virtual, *nullmodel.Field, *extent.Family){
 		"lonlat": nullSetup, "laea": nullSetupProjected,
+		"polar":        on("EPSG:3413", -300e3, 200e3, 2000),
+		"antimeridian": on("EPSG:3832", 3.0e6, 1.0e6, 2000),
+		"utm":          on("EPSG:32633", 200e3, 5.6e6, 1000),
+		"webmercator":  on("EPSG:3857", 1.0e6, 8.6e6, 4000),
 	} {
 		t.Run(name, func(t *testing.T) { virtualEqualsRaster(t, setup) })
 	}
@@ -446,8 +468,13 @@ func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
 // the same way), bit for bit, on projected grids where the tiles are not
 // latitude-longitude rectangles: Lambert azimuthal equal-area over Europe
 // with 2 km and 50 km cells, and a polar stereographic grid with 25 km cells
-// whose scale changes across a tile; and the pass's bounds of the null
-// (Field.Bounds) against those distances.
+// whose scale changes across a tile, and grids of 1 to 4 km cells in
+// EPSG:3413 around the pole, EPSG:3832 across the antimeridian, UTM zone
+// 33N and EPSG:3857; and the pass's bounds of the null (Field.Bounds, on
+// the field DistanceNull makes: NewPoints with CellCentres and
+// CellPoints) against those distances. On the grids of fine cells most
+// centres must be interpolated: the bounds ask PROJ for at most maxAsked
+// of the cells in blocks of 64.
 func TestVirtualProjectedMatchesNearest(t *testing.T) {
 	cases := []struct {
 		name string
@@ -456,10 +483,15 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 		w, h int
 		// sites in lat/lon
 		lat0, lon0, spread float64
+		maxAsked           float64 // share of cells
 	}{
-		{"laea-2km", "EPSG:3035", [6]float64{3.9e6, 2000, 0, 3.1e6, 0, -2000}, 180, 140, 48.5, 8, 1.5},
-		{"laea-50km", "EPSG:3035", [6]float64{2.5e6, 50000, 0, 5.0e6, 0, -50000}, 90, 70, 50, 10, 12},
-		{"polar-25km", "EPSG:3413", [6]float64{-2.0e6, 25000, 0, 2.0e6, 0, -25000}, 160, 160, 80, -40, 6},
+		{"laea-2km", "EPSG:3035", [6]float64{3.9e6, 2000, 0, 3.1e6, 0, -2000}, 180, 140, 48.5, 8, 1.5, 0.15},
+		{"laea-50km", "EPSG:3035", [6]float64{2.5e6, 50000, 0, 5.0e6, 0, -50000}, 90, 70, 50, 10, 12, 2},
+		{"polar-25km", "EPSG:3413", [6]float64{-2.0e6, 25000, 0, 2.0e6, 0, -25000}, 160, 160, 80, -40, 6, 2},
+		{"polar-2km", "EPSG:3413", [6]float64{-160e3, 2000, 0, 140e3, 0, -2000}, 160, 140, 88.5, 0, 1, 0.15},
+		{"antimeridian-2km", "EPSG:3832", [6]float64{3.2e6, 2000, 0, 1.0e6, 0, -2000}, 180, 140, 8.5, 180, 1, 0.15},
+		{"utm-1km", "EPSG:32633", [6]float64{300e3, 1000, 0, 5.6e6, 0, -1000}, 180, 140, 50, 14, 0.5, 0.15},
+		{"webmercator-4km", "EPSG:3857", [6]float64{1.0e6, 4000, 0, 8.6e6, 0, -4000}, 180, 140, 59, 11, 1, 0.15},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -478,7 +510,15 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 				t.Fatal(err)
 			}
 			cen := CellCentres(g)
-			f := nullmodel.New(ix, cen)
+			pts := CellPoints(g)
+			var asked atomic.Int64
+			f := nullmodel.NewPoints(ix, func(row, c0, c1 int, lons, lats []float64) {
+				asked.Add(int64(c1 - c0))
+				cen(row, c0, c1, lons, lats)
+			}, func(cols, rows []int, lons, lats []float64) {
+				asked.Add(int64(len(cols)))
+				pts(cols, rows, lons, lats)
+			})
 			got := make([]float64, g.Cells())
 			buf := make([]float64, 64*64)
 			for y0 := 0; y0 < g.Height; y0 += 64 {
@@ -522,6 +562,7 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 			fb := newFloorBinner(layout)
 			var ref []float64
 			for _, bs := range [][2]int{{64, 64}, {45, 30}} {
+				asked.Store(0)
 				lo, hi := make([]float64, g.Cells()), make([]float64, g.Cells())
 				blo, bhi := make([]float64, bs[0]*bs[1]), make([]float64, bs[0]*bs[1])
 				for y0 := 0; y0 < g.Height; y0 += bs[1] {
@@ -549,7 +590,10 @@ func TestVirtualProjectedMatchesNearest(t *testing.T) {
 						t.Fatalf("blocks %v cell %d: bounds [%.9f, %.9f], value %.9f", bs, i, lo[i], hi[i], v)
 					}
 				}
-				t.Logf("blocks %v: %d of %d cells exact", bs, exact, g.Cells())
+				t.Logf("blocks %v: %d of %d cells exact, %d centres asked for", bs, exact, g.Cells(), asked.Load())
+				if got := float64(asked.Load()) / float64(g.Cells()); bs[0] == 64 && got > tc.maxAsked {
+					t.Errorf("blocks %v: centres of %.1f%% of the cells asked for, want at most %.0f%%", bs, 100*got, 100*tc.maxAsked)
+				}
 				// Coarse cells (25 and 50 km) put the anchors' cells far
 				// apart, so fewer are bounded; a fifth must be.
 				if exact > g.Cells()*4/5 {
