@@ -27,6 +27,21 @@ type BatchOptions struct {
 	batchrun.Options
 }
 
+const batchLong = `batch reads a study table (CSV or YAML: one row per study with its id, models,
+occurrences and region, shared settings in one block), checks every row before
+anything runs (bad rows are listed by line and column, exit 2), then runs each
+study into --out/<id>/ with its full outputs, several at once within --jobs and a
+memory budget. A study that fails does not stop the others. Finally it writes the
+summary across studies into --out: summary.csv, summary_verdicts.csv, summary.html,
+summary_methods.md and summary_figures/.
+
+A finished study's folder holds the completion marker ` + "`.areasweep-done`" + `; running
+the same command again skips those studies and runs the others (failed ones
+included). A finished study whose table row changed, or one of whose input files
+was replaced by other content or removed since, is named and not run again
+without --force. Exit status: 0 when every study has results, 1 when at least one failed
+(the summary lists each with its error), 2 for a bad table or flags (nothing ran).`
+
 const batchExample = `  # start from the example table
   areasweep batch --template > studies.csv
 
@@ -43,22 +58,9 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 	opts := &BatchOptions{IO: streams, Options: batchrun.Options{Version: version, Validate: validateStudy}}
 	var memory string
 	cmd := &cobra.Command{
-		Use:   "batch TABLE",
-		Short: "Run every study of a study table, several at once, and summarise across them",
-		Long: `batch reads a study table (CSV or YAML: one row per study with its id, models,
-occurrences and region, shared settings in one block), checks every row before
-anything runs (bad rows are listed by line and column, exit 2), then runs each
-study into --out/<id>/ with its full outputs, several at once within --jobs and a
-memory budget. A study that fails does not stop the others. Finally it writes the
-summary across studies into --out: summary.csv, summary_verdicts.csv, summary.html,
-summary_methods.md and summary_figures/.
-
-A finished study's folder holds the completion marker ` + "`.areasweep-done`" + `; running
-the same command again skips those studies and runs the others (failed ones
-included). A finished study whose table row changed, or one of whose input files
-was replaced by other content or removed since, is named and not run again
-without --force. Exit status: 0 when every study has results, 1 when at least one failed
-(the summary lists each with its error), 2 for a bad table or flags (nothing ran).`,
+		Use:     "batch TABLE",
+		Short:   "Run every study of a study table, several at once, and summarise across them",
+		Long:    batchLong,
 		Example: batchExample,
 		Args:    cobra.MaximumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
@@ -70,17 +72,8 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 			}
 			opts.Table = args[0]
 			if c.Flags().Changed("only") {
-				// A scheduler passes --only "$AREASWEEP_STUDY": empty,
-				// it must not mean "every study" (each task would run
-				// the whole table).
-				for i, id := range opts.Only {
-					opts.Only[i] = strings.TrimSpace(id)
-				}
-				if len(opts.Only) == 0 || (len(opts.Only) == 1 && opts.Only[0] == "") {
-					return fault.BadInput(errors.New("--only is empty; name the study ids to run, comma-separated (is the variable that should hold them set?)"))
-				}
-				if slices.Contains(opts.Only, "") {
-					return fault.BadInput(fmt.Errorf("--only %q holds an empty id (a stray comma?); name the study ids, comma-separated", strings.Join(opts.Only, ",")))
+				if err := trimOnly(opts.Only); err != nil {
+					return fault.BadInput(err)
 				}
 			}
 			if c.Flags().Changed("memory") {
@@ -112,6 +105,22 @@ without --force. Exit status: 0 when every study has results, 1 when at least on
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
 	bindSlurmFlags(f, &opts.Slurm)
 	return cmd
+}
+
+// trimOnly trims the ids given to --only and refuses an empty one. A
+// scheduler passes --only "$AREASWEEP_STUDY": empty, it must not mean
+// "every study" (each task would run the whole table).
+func trimOnly(only []string) error {
+	for i, id := range only {
+		only[i] = strings.TrimSpace(id)
+	}
+	if len(only) == 0 || (len(only) == 1 && only[0] == "") {
+		return errors.New("--only is empty; name the study ids to run, comma-separated (is the variable that should hold them set?)")
+	}
+	if slices.Contains(only, "") {
+		return fmt.Errorf("--only %q holds an empty id (a stray comma?); name the study ids, comma-separated", strings.Join(only, ","))
+	}
+	return nil
 }
 
 // validate checks the flags that need no file access.
