@@ -377,23 +377,6 @@ func TestBatchMemoryBudget(t *testing.T) {
 	}
 }
 
-// TestParseBytes checks the --memory sizes (binary units: 1K = 1024).
-func TestParseBytes(t *testing.T) {
-	for _, c := range []struct {
-		in   string
-		want int64
-	}{{"512M", 512 << 20}, {"8G", 8 << 30}, {"8g", 8 << 30}, {"1.5GiB", 3 << 29}, {"2048", 2048}, {"64KB", 64 << 10}, {"1T", 1 << 40}} {
-		if got, err := parseBytes(c.in); err != nil || got != c.want {
-			t.Errorf("%q: %d %v, want %d", c.in, got, err, c.want)
-		}
-	}
-	for _, bad := range []string{"", "0", "-1G", "G", "lots", "1e30G"} {
-		if _, err := parseBytes(bad); err == nil {
-			t.Errorf("%q accepted", bad)
-		}
-	}
-}
-
 // TestBatchShards runs the batch of batchTable with every study split into
 // two shards of grid rows, merged into the study's folder: the studies
 // equal plain runs byte for byte, the broken study fails in its shards

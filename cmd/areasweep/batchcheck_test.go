@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -10,53 +9,7 @@ import (
 	"syscall"
 	"testing"
 	"time"
-
-	"areasweep/cmd/internal/batch"
 )
-
-// TestBatchSettingsHashIgnoresHowTableIsNamed: the studies' input paths
-// and the completion marker's settings checksum must not depend on whether the table was named by a
-// relative or an absolute path (a scheduler task names it absolutely; a
-// user resumes from another folder), or every finished study would be
-// taken as made from other settings.
-func TestBatchSettingsHashIgnoresHowTableIsNamed(t *testing.T) {
-	s := sharedStudy(t)
-	table := batchTable(t, s)
-	wd, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	rel, err := filepath.Rel(wd, table)
-	if err != nil {
-		t.Fatal(err)
-	}
-	out := filepath.Join(t.TempDir(), "out")
-	byAbs, err := resolveBatch(&BatchOptions{Table: table, Out: out})
-	if err != nil {
-		t.Fatal(err)
-	}
-	byRel, err := resolveBatch(&BatchOptions{Table: rel, Out: out})
-	if err != nil {
-		t.Fatal(err)
-	}
-	// The table's relative paths resolve to absolute ones either way, so
-	// the studies record the same inputs in results.json.
-	for i := range byAbs {
-		if o := byRel[i].opts.Occurrences; o != byAbs[i].opts.Occurrences || !filepath.IsAbs(o) {
-			t.Errorf("study %s: occurrences %s with %s, %s with %s", byAbs[i].id, byAbs[i].opts.Occurrences, table, o, rel)
-		}
-	}
-	for i := range byAbs {
-		if byAbs[i].settings != byRel[i].settings {
-			t.Errorf("study %s: settings checksum %s with %s, %s with %s", byAbs[i].id, byAbs[i].settings, table, byRel[i].settings, rel)
-		}
-	}
-	// Another input must still change it.
-	byAbs[1].opts.Occurrences = s.far
-	if h := batch.SettingsHash(canonicalSettings(byAbs[1].opts.Options)); h == byRel[1].settings {
-		t.Error("another occurrence file gave the same settings checksum")
-	}
-}
 
 // TestBatchForceIntoFolderWithoutMarker: a study folder that exists
 // without a completion marker (here holding a file of the user's) is
@@ -142,58 +95,6 @@ func TestBatchStoppedBySignal(t *testing.T) {
 	_, se, code := runBin(t, "batch", table, "--out", out)
 	if code != 0 || !strings.Contains(se, "quick: already finished, skipped") {
 		t.Fatalf("rerun: exit %d: %s", code, se)
-	}
-}
-
-// TestSlurmPendingStale: a study finished from another row (here another
-// seed) is not submitted again without --force and is named; with
-// --force its marker is removed (else the array script would skip the
-// task as finished) and its task submitted. Finished studies whose row
-// did not change stay finished.
-func TestSlurmPendingStale(t *testing.T) {
-	s := sharedStudy(t)
-	table := batchTable(t, s)
-	out := filepath.Join(t.TempDir(), "runs")
-	if _, se, code := runBin(t, "batch", table, "--out", out, "--only", "alpha,beta", "--quiet"); code != 0 {
-		t.Fatalf("batch: exit %d: %s", code, se)
-	}
-	body, err := os.ReadFile(table)
-	if err != nil {
-		t.Fatal(err)
-	}
-	changed := strings.Replace(string(body), "occ.csv,region.geojson,11", "occ.csv,region.geojson,12", 1)
-	if changed == string(body) {
-		t.Fatal("the test table has no row with seed 11")
-	}
-	table2 := filepath.Join(filepath.Dir(table), "studies-seed12.csv")
-	if err := os.WriteFile(table2, []byte(changed), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	for _, force := range []bool{false, true} {
-		pending, stale := slurmPendingOf(t, &BatchOptions{Table: table2, Out: out, Shards: 1, Force: force, Slurm: SlurmOptions{Enabled: true, CPUs: 1}})
-		// Tasks: 1 alpha (finished, same row), 2 beta (finished, row
-		// changed), 3 broken (never finished).
-		wantPending, wantStale := []int{3}, []string{"beta"}
-		if force {
-			wantPending, wantStale = []int{2, 3}, nil
-		}
-		var ids []string
-		for _, s := range stale {
-			ids = append(ids, s.st.id)
-			if !strings.Contains(s.why.why, "from other settings") {
-				t.Errorf("force %v: %s stale because %q; want the row named", force, s.st.id, s.why.why)
-			}
-		}
-		if fmt.Sprint(pending) != fmt.Sprint(wantPending) || fmt.Sprint(ids) != fmt.Sprint(wantStale) {
-			t.Errorf("force %v: pending %v, stale %v; want %v, %v", force, pending, ids, wantPending, wantStale)
-		}
-		_, err = os.Stat(filepath.Join(out, "beta", ".areasweep-done"))
-		if force == (err == nil) {
-			t.Errorf("force %v: beta's marker: %v", force, err)
-		}
-	}
-	if _, err := os.Stat(filepath.Join(out, "alpha", ".areasweep-done")); err != nil {
-		t.Errorf("alpha's marker: %v", err)
 	}
 }
 
@@ -289,23 +190,4 @@ func TestTwoBatchesOnOneFolder(t *testing.T) {
 			t.Errorf("summary row %v", row)
 		}
 	}
-}
-
-// slurmPendingOf resolves the batch of o and returns the tasks --slurm
-// would submit and the studies it finds stale (slurmPending).
-func slurmPendingOf(t *testing.T, o *BatchOptions) ([]int, []staleStudy) {
-	t.Helper()
-	studies, err := resolveBatch(o)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := slurmPlan(o, studies)
-	if err != nil {
-		t.Fatal(err)
-	}
-	pending, stale, err := slurmPending(o, p, studies)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return pending, stale
 }

@@ -3,10 +3,11 @@
 // study's failure kept to itself; and it keeps the completion marker that
 // makes a re-run skip the studies already done.
 //
-// It knows nothing of GDAL or of how a study runs: the command gives it
-// each study's memory need and a function that runs study i. Its output
-// is a list of per-study errors in the table's order, so what the command
-// writes afterwards does not depend on the order the studies finished in.
+// It knows nothing of GDAL or of how a study runs: its caller (package
+// batchrun) gives it each study's memory need and a function that runs
+// study i. Its output is a list of per-study errors in the table's order,
+// so what the caller writes afterwards does not depend on the order the
+// studies finished in.
 //
 // # Scheduling
 //

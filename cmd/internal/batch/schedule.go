@@ -4,6 +4,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strconv"
+	"strings"
 	"sync"
 )
 
@@ -121,4 +123,26 @@ func Bytes(b int64) string {
 		return fmt.Sprintf("%.1f GiB", float64(b)/(1<<30))
 	}
 	return fmt.Sprintf("%.0f MiB", float64(b)/(1<<20))
+}
+
+// ParseBytes reads a size such as 512M, 8G, 1.5GiB or a plain byte count
+// (binary units: 1K = 1024), as the batch's --memory takes it.
+func ParseBytes(s string) (int64, error) {
+	t := strings.ToUpper(strings.TrimSpace(s))
+	t = strings.TrimSuffix(strings.TrimSuffix(t, "IB"), "B")
+	mult := int64(1)
+	for _, u := range []struct {
+		suffix string
+		m      int64
+	}{{"K", 1 << 10}, {"M", 1 << 20}, {"G", 1 << 30}, {"T", 1 << 40}} {
+		if strings.HasSuffix(t, u.suffix) {
+			t, mult = strings.TrimSuffix(t, u.suffix), u.m
+			break
+		}
+	}
+	v, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+	if err != nil || !(v > 0) || v*float64(mult) > 1<<62 {
+		return 0, errors.New("give a positive size such as 512M, 8G or 16GiB")
+	}
+	return int64(v * float64(mult)), nil
 }

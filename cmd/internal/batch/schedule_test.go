@@ -153,3 +153,20 @@ func TestMarker(t *testing.T) {
 		t.Error("a key with a tab was accepted")
 	}
 }
+
+// TestParseBytes checks the --memory sizes (binary units: 1K = 1024).
+func TestParseBytes(t *testing.T) {
+	for _, c := range []struct {
+		in   string
+		want int64
+	}{{"512M", 512 << 20}, {"8G", 8 << 30}, {"8g", 8 << 30}, {"1.5GiB", 3 << 29}, {"2048", 2048}, {"64KB", 64 << 10}, {"1T", 1 << 40}} {
+		if got, err := ParseBytes(c.in); err != nil || got != c.want {
+			t.Errorf("%q: %d %v, want %d", c.in, got, err, c.want)
+		}
+	}
+	for _, bad := range []string{"", "0", "-1G", "G", "lots", "1e30G"} {
+		if _, err := ParseBytes(bad); err == nil {
+			t.Errorf("%q accepted", bad)
+		}
+	}
+}

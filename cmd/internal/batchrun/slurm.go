@@ -1,9 +1,10 @@
-package main
+package batchrun
 
 import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -12,51 +13,12 @@ import (
 	"strings"
 	"time"
 
-	"github.com/spf13/pflag"
-
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
-	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/slurm"
 )
-
-// SlurmOptions turn a batch into a SLURM job array plus a merge job.
-type SlurmOptions struct {
-	// Enabled (--slurm) writes the job files instead of running.
-	Enabled bool
-	// Submit submits them with sbatch; Wait then waits until they left
-	// the queue and reports the tasks that did not finish.
-	Submit, Wait bool
-	// Partition, TimeLimit, CPUs and MaxParallel are the job's resources.
-	Partition, TimeLimit string
-	CPUs, MaxParallel    int
-}
-
-func bindSlurmFlags(f *pflag.FlagSet, o *SlurmOptions) {
-	f.BoolVar(&o.Enabled, "slurm", false, "write a SLURM job array (one task per study, or per study and shard with --shards) and a merge job that merges the shards and writes the summary, instead of running")
-	f.BoolVar(&o.Submit, "submit", false, "with --slurm: submit the unfinished tasks and the merge job with sbatch")
-	f.BoolVar(&o.Wait, "wait", false, "with --submit: wait until the jobs have left the queue and report the tasks that did not finish")
-	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs (default: the cluster's)")
-	f.StringVar(&o.TimeLimit, "time", "", "with --slurm: time limit `TIME` per task, e.g. 02:00:00 (default: the partition's)")
-	f.IntVar(&o.CPUs, "cpus-per-task", 1, "with --slurm: CPUs per task `N` (each study uses them all)")
-	f.IntVar(&o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
-}
-
-func (o *SlurmOptions) validate() error {
-	switch {
-	case o.Wait && !o.Submit:
-		return errors.New("--wait needs --submit")
-	case !o.Enabled && (o.Partition != "" || o.TimeLimit != "" || o.MaxParallel != 0):
-		return errors.New("--partition, --time and --max-parallel need --slurm")
-	case o.CPUs < 1 || o.CPUs > settings.MaxWorkers:
-		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, settings.MaxWorkers)
-	case o.MaxParallel < 0:
-		return fmt.Errorf("--max-parallel is %d; give 0 (no limit) or more", o.MaxParallel)
-	}
-	return nil
-}
 
 // clientsPresent checks, before anything is written, that the SLURM
 // commands --submit (sbatch) and --wait (squeue) run are on PATH.
@@ -78,16 +40,13 @@ func (o *SlurmOptions) clientsPresent() error {
 	return nil
 }
 
-// slurmDir is where the plan goes: manifest.tsv, array.sh, merge.sh, logs/.
-func slurmDir(out string) string { return filepath.Join(out, batchMarker, "slurm") }
-
 var jobNameUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
 
 // slurmPlan builds the plan of a batch: one task per study (the whole
 // study, shard 1/1) running this executable's batch command on that
 // study alone, and a merge job writing the summary; memory per task from
 // the largest study's estimate.
-func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
+func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 	exe, err := os.Executable()
 	if err != nil {
 		return nil, fmt.Errorf("cannot find the areasweep executable for the job scripts: %w", err)
@@ -115,7 +74,7 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 				p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: k, Shards: o.Shards, Out: shardDir(out, st.id, k)})
 			}
 		}
-		so := st.opts.Options
+		so := st.opts
 		so.Workers = o.Slurm.CPUs
 		// A study whose inputs cannot be read still gets its task: it
 		// fails there and the summary lists it.
@@ -141,7 +100,7 @@ func slurmPlan(o *BatchOptions, studies []*batchStudy) (*slurm.Plan, error) {
 // slurmMissing refuses a SLURM plan for a table with a missing input
 // file, before anything is written: that study's task would fail, and
 // the plan is made again in a moment once the path is fixed.
-func slurmMissing(studies []*batchStudy) error {
+func slurmMissing(studies []*study) error {
 	var missing inputs.BatchErrors
 	for _, st := range studies {
 		var be *inputs.BatchError
@@ -155,9 +114,9 @@ func slurmMissing(studies []*batchStudy) error {
 	return fault.BadInput(fmt.Errorf("%w\nnothing was written or submitted: fix the paths (or remove the rows), then run this command again", missing))
 }
 
-// batchSlurm writes the plan and, with --submit, submits the unfinished
-// tasks and the merge job.
-func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) error {
+// runSlurm writes the plan and, with --submit, submits the unfinished
+// tasks and the merge job; it prints to w what it wrote and did.
+func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) error {
 	p, err := slurmPlan(o, studies)
 	if err != nil {
 		return err
@@ -170,7 +129,6 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if err != nil {
 		return err
 	}
-	w := o.IO.Out
 	var staleIDs, unreadableIDs []string
 	for _, s := range stale {
 		if s.err != nil {
@@ -206,6 +164,13 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 	if err := (slurm.Submitter{}).Wait(ctx, time.Second, sub.ArrayJob, sub.MergeJob); err != nil {
 		return err
 	}
+	return waited(o, w, studies, files.Logs, staleIDs, unreadableIDs)
+}
+
+// waited reports, once the submitted jobs left the queue, the studies that
+// did not finish and those not submitted (staleIDs, unreadableIDs) as the
+// error, or that every task finished.
+func waited(o *Options, w io.Writer, studies []*study, logs string, staleIDs, unreadableIDs []string) error {
 	var notDone []string
 	for _, st := range studies {
 		if s, _, err := st.state(); s == statePending && err == nil {
@@ -226,7 +191,7 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 			return fmt.Errorf("every submitted task finished; %s", strings.TrimPrefix(also, "; "))
 		}
 		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
-			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), files.Logs, also)
+			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), logs, also)
 	case len(staleIDs) > 0:
 		return fmt.Errorf("%d of %d studies were made from other settings or inputs and not run again (%s, each named above): add --force to run them again",
 			len(staleIDs), len(studies), strings.Join(staleIDs, ", "))
@@ -238,7 +203,7 @@ func batchSlurm(ctx context.Context, o *BatchOptions, studies []*batchStudy) err
 // staleStudy is a finished study made from other settings or inputs,
 // or (err set) one whose recorded input files cannot be read to tell.
 type staleStudy struct {
-	st  *batchStudy
+	st  *study
 	why staleness
 	err error
 }
@@ -251,8 +216,8 @@ type staleStudy struct {
 // so that the array script does not skip it as finished; without --force
 // it is listed in stale instead, in table order. A shard made from other
 // settings or inputs runs again (its marker removed), as in a local batch.
-func slurmPending(o *BatchOptions, p *slurm.Plan, studies []*batchStudy) (pending []int, stale []staleStudy, err error) {
-	byID := map[string]*batchStudy{}
+func slurmPending(o *Options, p *slurm.Plan, studies []*study) (pending []int, stale []staleStudy, err error) {
+	byID := map[string]*study{}
 	for _, st := range studies {
 		byID[st.id] = st
 	}

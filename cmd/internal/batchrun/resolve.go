@@ -1,0 +1,216 @@
+package batchrun
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
+	"areasweep/report"
+)
+
+// study is one row of the table, resolved.
+type study struct {
+	id       string
+	line     int
+	opts     pipeline.Options
+	settings string // batch.SettingsHash of the settings
+	dir      string // --out/<id>
+	// inputs compares the input files a marker records with the files
+	// now; one for the whole batch, shared by its studies.
+	inputs *batch.Checker
+	// missing, when not nil, names an input file of the study that does
+	// not exist (with the table's file, line and column): the study
+	// fails without running, the others run.
+	missing error
+}
+
+// resolve reads the table and resolves every row into run options,
+// collecting every problem, by line and column, before anything runs.
+func resolve(o *Options) ([]*study, error) {
+	// A table with problems still gives its good rows, checked below
+	// too, so that every problem is listed in one round.
+	b, err := inputs.LoadBatch(o.Table)
+	var errs inputs.BatchErrors
+	if err != nil && (b == nil || !errors.As(err, &errs)) {
+		return nil, err
+	}
+	out, err := filepath.Abs(o.Out)
+	if err != nil {
+		return nil, fmt.Errorf("--out %s: %w", o.Out, err)
+	}
+	reserved := map[string]bool{}
+	for _, n := range append(report.SummaryNames(), OwnDir) {
+		reserved[strings.ToLower(n)] = true
+	}
+	var studies []*study
+	check := &batch.Checker{}
+	for _, row := range b.Studies {
+		st, err := resolveRow(o, b.File, row, out, reserved)
+		if err != nil {
+			errs = append(errs, err)
+			continue
+		}
+		st.inputs = check
+		studies = append(studies, st)
+	}
+	if len(errs) > 0 {
+		inputs.SortBatchErrors(errs)
+		return nil, errs
+	}
+	if len(o.Only) > 0 {
+		return selectOnly(o, studies)
+	}
+	return studies, nil
+}
+
+// resolveRow lays one row of the table (file) over the defaults into the
+// study's settings, its folder in out; the error is the row's problem.
+func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, reserved map[string]bool) (*study, *inputs.BatchError) {
+	bad := func(column string, err error) *inputs.BatchError {
+		return &inputs.BatchError{File: file, Line: row.Line, Column: column, Study: row.ID, Err: err}
+	}
+	if reserved[strings.ToLower(row.ID)] {
+		return nil, bad("id", fmt.Errorf("%q is the name of a summary file in --out; rename the study", row.ID))
+	}
+	po := pipeline.Options{Values: settings.Defaults()}
+	row.Study.Apply(&po.Values, func(string) bool { return false }) // no flag: the row and the shared block say all
+	po.Out = filepath.Join(out, row.ID)
+	if o.Validate != nil {
+		if err := o.Validate(&po); err != nil {
+			return nil, bad(flagColumn(err.Error()), err)
+		}
+	}
+	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
+	if col, err := missingInput(&po); err != nil {
+		// Not the table's fault alone (a file may be
+		// removed or not yet written): this study fails,
+		// the others still run. A SLURM plan refuses it
+		// (runSlurm), before anything is submitted.
+		st.missing = bad(col, err)
+	}
+	st.settings = batch.SettingsHash(canonicalSettings(po))
+	return st, nil
+}
+
+// selectOnly keeps the studies o.Only names, in table order, and refuses
+// an id that is not in the table.
+func selectOnly(o *Options, studies []*study) ([]*study, error) {
+	keep := map[string]bool{}
+	for _, id := range o.Only {
+		keep[strings.ToLower(id)] = true
+	}
+	var sel []*study
+	for _, st := range studies {
+		if keep[strings.ToLower(st.id)] {
+			sel = append(sel, st)
+			delete(keep, strings.ToLower(st.id))
+		}
+	}
+	if len(keep) > 0 {
+		var ids []string
+		for _, id := range o.Only {
+			if keep[strings.ToLower(id)] {
+				ids = append(ids, id)
+			}
+		}
+		return nil, fmt.Errorf("--only names %s, not in %s", strings.Join(ids, ", "), o.Table)
+	}
+	return sel, nil
+}
+
+// flagColumn turns a validation message about "--name" into the table's
+// column "name" ("" when the message names no flag).
+func flagColumn(msg string) string {
+	for _, k := range inputs.StudyKeys() {
+		if strings.Contains(msg, "--"+k+" ") || strings.Contains(msg, "--"+k+":") || strings.HasSuffix(msg, "--"+k) {
+			return k
+		}
+	}
+	for _, w := range []struct{ word, col string }{{"no model", "model"}, {"no occurrences", "occurrences"}, {"no base region", "region"}} {
+		if strings.Contains(msg, w.word) {
+			return w.col
+		}
+	}
+	return ""
+}
+
+// missingInput names the first input file of o that does not exist, with
+// its column.
+func missingInput(o *pipeline.Options) (string, error) {
+	check := func(col, path string) error {
+		if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+			return fmt.Errorf("%s is a GDAL virtual path or a URL; areasweep reads local files only: download or unzip the file and give its path", path)
+		}
+		st, err := os.Stat(path)
+		if err != nil {
+			return fmt.Errorf("%s does not exist or cannot be read; check the path", path)
+		}
+		if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
+			return fmt.Errorf("%s is a folder, not a file", path)
+		}
+		return nil
+	}
+	for _, l := range []struct {
+		col   string
+		items []string
+	}{{"model", o.Models}, {"null", o.Nulls}, {"extra", o.Extra}} {
+		for _, m := range l.items {
+			_, path, _ := inputs.ParseNamedPath(m)
+			if err := check(l.col, path); err != nil {
+				return l.col, err
+			}
+		}
+	}
+	for _, p := range []struct{ col, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+		if p.path != "" {
+			if err := check(p.col, p.path); err != nil {
+				return p.col, err
+			}
+		}
+	}
+	return "", nil
+}
+
+// canonicalSettings encodes the settings that change a study's numbers or
+// files: everything but the output folder, --force, --quiet, the worker
+// count (results do not depend on it) and the recorded version. Input
+// paths are made absolute: the table's relative paths are joined to the
+// table's folder as the user named it, so the same table read from
+// another working directory (or by a scheduler task, which names it by
+// its absolute path) must give the same checksum.
+func canonicalSettings(o pipeline.Options) []byte {
+	o.Out, o.Force, o.Quiet, o.Workers, o.Version, o.StudyFile = "", false, false, 0, "", ""
+	abs := func(p string) string {
+		if p == "" {
+			return p
+		}
+		if a, err := filepath.Abs(p); err == nil {
+			return a
+		}
+		return p
+	}
+	named := func(items []string) []string {
+		out := make([]string, len(items))
+		for i, it := range items {
+			out[i] = it
+			if name, path, err := inputs.ParseNamedPath(it); err == nil {
+				out[i] = name + "=" + abs(path)
+			}
+		}
+		return out
+	}
+	o.Occurrences, o.Region, o.Ecoregions = abs(o.Occurrences), abs(o.Region), abs(o.Ecoregions)
+	o.Models, o.Nulls, o.Extra = named(o.Models), named(o.Nulls), named(o.Extra)
+	data, err := json.Marshal(o)
+	if err != nil {
+		panic("batch: settings cannot be encoded: " + err.Error()) // plain fields only: a programmer's error
+	}
+	return data
+}

@@ -1,0 +1,217 @@
+package batchrun
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/cmd/internal/slurm"
+	"areasweep/report"
+	"areasweep/report/outfile"
+)
+
+// Run runs the batch: resolve the table, run what is not done, summarise;
+// with o.Slurm.Enabled it writes (and with Submit submits) the SLURM plan
+// instead. Its error is classed for the exit status (package fault): a bad
+// table or --out, nothing ran; a failed study; an internal error.
+func Run(ctx context.Context, o *Options, w IO) error {
+	studies, err := resolve(o)
+	if err != nil {
+		return fault.BadInput(err)
+	}
+	if o.Slurm.Enabled {
+		if err := slurmMissing(studies); err != nil {
+			return err
+		}
+	}
+	if err := o.Slurm.clientsPresent(); err != nil {
+		return fault.BadInput(err)
+	}
+	if err := claimDir(o.Out); err != nil {
+		return err
+	}
+	if o.Slurm.Enabled {
+		return runSlurm(ctx, o, w.Out, studies)
+	}
+	return runLocal(ctx, o, w, studies)
+}
+
+// runLocal runs the studies on this machine, records each study's
+// failure, writes the summary (not with --only) and returns the failed
+// studies as one error.
+func runLocal(ctx context.Context, o *Options, w IO, studies []*study) error {
+	note := "the running studies' partial results were removed; the studies that had finished keep their folders, and running the same command again runs the others"
+	if w.StopNote != nil {
+		defer w.StopNote(note)()
+	}
+	p := &progress{quiet: o.Quiet, w: w.ErrOut}
+	errs := runStudies(ctx, o, studies, p)
+	// Another batch on the same --out (or a scheduler task) may have
+	// finished a study that failed here (its folder was in use, or already
+	// held its outputs): the summary and the exit status go by the
+	// folders as they are now.
+	for i, st := range studies {
+		if errs[i] != nil {
+			if s, _, _ := st.state(); s == stateDone {
+				p.line(st.id, "finished by another run meanwhile")
+				errs[i] = nil
+			}
+		}
+	}
+	if !o.SummaryOnly || o.Shards > 1 {
+		for i, st := range studies {
+			recordFailure(o.Out, st.id, o.Shard, errs[i])
+		}
+	}
+	if len(o.Only) == 0 {
+		if err := writeSummary(o, studies, errs); err != nil {
+			return err
+		}
+		fmt.Fprintf(w.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
+	}
+	failed := 0
+	for _, err := range errs {
+		if err != nil {
+			failed++
+		}
+	}
+	if failed > 0 {
+		return failedStudies(o, studies, errs, failed)
+	}
+	return nil
+}
+
+// claimDir creates --out or checks that it is empty or a batch's folder,
+// and marks it as one.
+func claimDir(out string) error {
+	ents, err := os.ReadDir(out)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		if err := os.MkdirAll(out, 0o777); err != nil {
+			return fmt.Errorf("cannot create --out %s: %w", out, err)
+		}
+	case err != nil:
+		if st, serr := os.Stat(out); serr == nil && !st.IsDir() {
+			return fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the studies", out))
+		}
+		return fault.BadInput(fmt.Errorf("--out %s cannot be read (%w); choose a folder you can read and write", out, outdir.Cause(err)))
+	case len(ents) > 0:
+		if _, err := os.Stat(filepath.Join(out, OwnDir)); err != nil {
+			return fault.BadInput(fmt.Errorf("--out %s exists and is not a batch's folder (no %s in it); choose a new or empty folder", out, OwnDir))
+		}
+	}
+	if err := os.MkdirAll(filepath.Join(out, OwnDir), 0o777); err != nil {
+		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, OwnDir), err)
+	}
+	return nil
+}
+
+// recordFailure keeps err as the study's last error, or removes the
+// record when err is nil. Best effort: the summary names the study as
+// unfinished without it.
+func recordFailure(out, id string, k int, err error) {
+	p := failurePath(out, id, k)
+	if err == nil {
+		os.Remove(p)
+		return
+	}
+	if os.MkdirAll(filepath.Dir(p), 0o777) == nil {
+		outfile.Write(p, []byte(oneLine(fault.UserText(err))+"\n"), 0o666)
+	}
+}
+
+// readFailure is the error of a study that did not finish (k = 0) or of
+// its shard k that did not: the one its run recorded, else a note that
+// it did not finish.
+func readFailure(out string, st *study, k int) error {
+	if b, err := os.ReadFile(failurePath(out, st.id, k)); err == nil && len(b) > 0 {
+		return errors.New(strings.TrimSpace(string(b)))
+	}
+	if k > 0 {
+		return fmt.Errorf("shard %d not finished: %s holds no completion marker (%s); see the job logs", k, shardDir(out, st.id, k), slurm.MarkerName)
+	}
+	return fmt.Errorf("not finished: %s holds no completion marker (%s); see the job logs", st.dir, slurm.MarkerName)
+}
+
+// maxFailuresShown is how many failed studies' errors the batch's final
+// message lists.
+const maxFailuresShown = 20
+
+// failedStudies is the batch's final error: the failed studies' ids, then
+// each with its error, one per line (--quiet drops the progress lines,
+// and with --only, as in a scheduler task's log, no summary lists them).
+func failedStudies(o *Options, studies []*study, errs []error, failed int) error {
+	var ids, lines []string
+	stale, damaged := 0, 0
+	for i, err := range errs {
+		if err == nil {
+			continue
+		}
+		var se *staleError
+		var de *damagedError
+		var ue *batch.UnreadableError
+		switch {
+		case errors.As(err, &se):
+			stale++
+		case errors.As(err, &de), errors.As(err, &ue):
+			damaged++ // the user's to fix first: see its line
+		}
+		ids = append(ids, studies[i].id)
+		if len(lines) < maxFailuresShown {
+			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(fault.UserText(err)))
+		}
+	}
+	if len(ids) > maxFailuresShown {
+		lines = append(lines, fmt.Sprintf("\n  ... and %d more", len(ids)-maxFailuresShown))
+	}
+	where := ""
+	if len(o.Only) == 0 {
+		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
+	}
+	again := "running the same command again retries them"
+	switch {
+	case damaged == failed:
+		again = "each line says what to do"
+	case stale == failed:
+		again = "--force runs them again (they were made from other settings or inputs)"
+	case stale > 0 || damaged > 0:
+		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json or an input that cannot be read (see their lines)"
+	}
+	// Shown: each line went through UserText; the ids are the user's own
+	// (a study named "report" or "pass" keeps its name).
+	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
+		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
+}
+
+// forceNote adds to the error of a study whose recorded input cannot be
+// read (batch.UnreadableError) that --force, when given, does not get past
+// it: --force runs studies again and replaces areasweep's own files; it
+// never skips a check of an input.
+func forceNote(o *Options, err error) error {
+	var ue *batch.UnreadableError
+	if o.Force && errors.As(err, &ue) {
+		return fmt.Errorf("%w; --force does not get past this: it runs studies again and replaces areasweep's own files, never skips reading an input", err)
+	}
+	return err
+}
+
+// staleError is the error of a finished study made from other settings or
+// inputs than the table's now, not run again without --force.
+type staleError struct{ msg string }
+
+func (e *staleError) Error() string { return e.msg }
+
+// damagedError is the error of a finished study whose results.json no
+// longer reads as a run wrote it: running the batch again skips it.
+type damagedError struct{ msg string }
+
+func (e *damagedError) Error() string { return e.msg }
+
+// oneLine joins an error message's lines.
+func oneLine(s string) string { return strings.Join(strings.Fields(s), " ") }

@@ -1,0 +1,54 @@
+package batchrun
+
+import (
+	"errors"
+	"fmt"
+	"path/filepath"
+	"strings"
+
+	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/fault"
+	"areasweep/report"
+)
+
+// writeSummary loads each finished study's results.json (the same
+// bytes whether it ran now or earlier, so the summary does not depend on
+// --jobs or on resuming) and writes the summary into --out. A finished
+// study whose results.json cannot be read as a run wrote it (edited or
+// damaged since) gets its error in errs: the summary and the exit status
+// count it as failed.
+func writeSummary(o *Options, studies []*study, errs []error) error {
+	rs := make([]report.StudyResult, len(studies))
+	for i, st := range studies {
+		rs[i] = report.StudyResult{ID: st.id}
+		if errs[i] != nil {
+			// summary.csv and summary.html show it as the batch's
+			// message does, without areasweep's package names.
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
+			continue
+		}
+		// The checksum the study's marker recorded spares the shape
+		// walk of an unchanged file (report.LoadWritten).
+		sum := ""
+		if m, err := batch.ReadMarker(st.dir); err == nil && m != nil {
+			sum = m["results"]
+		}
+		r, err := report.LoadWritten(filepath.Join(st.dir, "results.json"), sum)
+		if err != nil {
+			// Finished (its completion marker is there), so the same
+			// command would skip it again: say how to run it again.
+			errs[i] = &damagedError{fmt.Sprintf("%s; the study counts as finished: restore the file, or remove %s and run the same command with --force to run the study again", strings.TrimSuffix(fault.UserText(err), "."), batch.MarkerPath(st.dir))}
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
+			continue
+		}
+		rs[i].Results, rs[i].Report = r, st.id+"/report.html"
+	}
+	s, err := report.Summarize(rs)
+	if err != nil {
+		return fault.Internal(err)
+	}
+	if err := report.WriteSummary(o.Out, s); err != nil {
+		return fmt.Errorf("writing the summary: %w", err)
+	}
+	return nil
+}
