@@ -269,9 +269,12 @@ func validLonLat(lat, lon float64) bool {
 // its bins, reaches the outputs: the sorting-bias tally adds it to the
 // millimetre and the preview copies it (see pass.Virtual). So brackets
 // from interpolated centres (and the few more exact cells they bring)
-// move the sorting-bias means and the preview's values in their 9th to
-// 11th digit against brackets from PROJ's centres (the owner accepted
-// it: those means are descriptive, already computed from midpoints);
+// move the sorting-bias means and the preview's values against brackets
+// from PROJ's centres: by 1e-9 to 1e-6 of their value on most of 80
+// randomized projected studies, 4e-5 at most (a CONUS Albers grid), all
+// within the 0.1% those means are computed to (BracketTol). The owner
+// accepted it: the means are descriptive, already computed from
+// midpoints;
 // every score is unchanged, since a bracket shares its value's bins and
 // the cells whose exact values the pass needs are computed with Fill, and
 // the outputs stay the same on any worker count and shard split, since a
