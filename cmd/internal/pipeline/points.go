@@ -315,11 +315,33 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 // readPoints reads the occurrence table, places each record on the grid,
 // drops those outside the raster or on no-data, and thins duplicates.
 func (s *Study) readPoints() error {
-	o, g := s.o, s.grid
 	lons, lats, recs, err := s.readLonLat()
 	if err != nil {
 		return err
 	}
+	s.placeOnGrid(lons, lats, recs)
+	pointVals, pointValid, err := s.sampleFirst()
+	if err != nil {
+		return err
+	}
+	pl := s.choose(pointVals, pointValid)
+	s.warnDropped(pl)
+	s.countPoints()
+	c := s.res.PointCounts
+	if c.Test == 0 {
+		return fault.BadInput(s.noTestPoint(s.first))
+	}
+	if c.Train == 0 {
+		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
+	}
+	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
+	return nil
+}
+
+// placeOnGrid records each occurrence as a point with its cell (-1 and
+// status outside_raster when it lies off the grid).
+func (s *Study) placeOnGrid(lons, lats []float64, recs []inputs.Record) {
+	g := s.grid
 	n := len(recs)
 	xs := make([]float64, n)
 	ys := make([]float64, n)
@@ -339,13 +361,20 @@ func (s *Study) readPoints() error {
 		}
 		s.points[i] = p
 	}
+}
+
+// sampleFirst opens the reference (first) model and reads its values and
+// validity at the points' cells; for 'extents', which scores nothing, it
+// also reads the valid cells. The raster is kept as s.first.
+func (s *Study) sampleFirst() (vals []float64, valid []bool, err error) {
+	o, g := s.o, s.grid
 	// Points on no-data of the reference (first) model, from point reads.
 	// A run learns the valid cells in its first scoring pass; 'extents',
 	// which scores nothing, reads them once here.
 	first := s.models[0]
 	r, err := pass.Open(first.Path)
 	if err != nil {
-		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
+		return nil, nil, fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	if !o.ExtentsOnly {
 		// The blocks the points lie in are decoded here: kept (within
@@ -356,7 +385,7 @@ func (s *Study) readPoints() error {
 	pointVals, pointValid, err := r.Sample(g, s.cell)
 	if err != nil {
 		r.Close()
-		return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
+		return nil, nil, fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 	}
 	s.first = r
 	if o.ExtentsOnly {
@@ -364,11 +393,18 @@ func (s *Study) readPoints() error {
 		s.valid, err = r.ReadValid(g, bar.update)
 		bar.finish()
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
+			return nil, nil, fault.BadInput(fmt.Errorf("model %s: %w", first.Name, err))
 		}
 	}
-	// Which records are scored: none outside the raster or on no data,
-	// and one per cell and role unless --no-thin (extent/place).
+	return pointVals, pointValid, nil
+}
+
+// choose decides which records are scored (extent/place): none outside
+// the raster or on no data, and one per cell and role unless --no-thin;
+// it keeps the first model's values at the scored cells (vals, valid) so
+// that its pass does not read them again.
+func (s *Study) choose(pointVals []float64, pointValid []bool) place.Placement {
+	o := s.o
 	rr := place.Records{Cell: s.cell, Valid: pointValid, Role: make([]int, len(s.points))}
 	for i, p := range s.points {
 		if p.Role != vocab.RoleTrain {
@@ -386,6 +422,12 @@ func (s *Study) readPoints() error {
 			s.firstVals[i], s.firstValid[i] = 0, false
 		}
 	}
+	return pl
+}
+
+// warnDropped marks the points not scored (no data, thinned) and warns
+// about them and those outside the raster, naming their lines.
+func (s *Study) warnDropped(pl place.Placement) {
 	where := func(i int) string {
 		p := s.points[i]
 		return fmt.Sprintf("line %d (%.5f, %.5f)", p.ID, p.Lon, p.Lat)
@@ -413,16 +455,6 @@ func (s *Study) readPoints() error {
 		s.logf("thinned: %s", listSome(pairs, 10))
 		s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", len(pairs)))
 	}
-	s.countPoints()
-	c := s.res.PointCounts
-	if c.Test == 0 {
-		return fault.BadInput(s.noTestPoint(r))
-	}
-	if c.Train == 0 {
-		s.warn("no training point falls on a valid cell; training-presence thresholds, hulls, point buffers and ecoregion extents are skipped")
-	}
-	s.logf("occurrences: %d training and %d test points scored (%d thinned, %d outside the raster, %d on no-data)", c.Train, c.Test, c.Thinned, c.OutsideRaster, c.NoData)
-	return nil
 }
 
 // countPoints fills Results.PointCounts from the points' statuses.
