@@ -29,8 +29,27 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 	if err != nil {
 		return fmt.Errorf("ecoregions: %w", err)
 	}
+	counts := b.trainCounts(units, spec.Train)
+	selected, sel, err := selectUnits(units, counts, k, spec.Ecoregions)
+	if err != nil {
+		return err
+	}
+	if len(selected) == 0 {
+		b.f.Warnings = append(b.f.Warnings, fmt.Sprintf("no unit of %s holds %d or more training points; no ecoregion extents", spec.Ecoregions, k))
+		return nil
+	}
+	touching, err := b.touchingUnits(units, counts, k, sel, spec.Ecoregions)
+	if err != nil {
+		return err
+	}
+	return b.addEcoregions(spec, baseK, k, units, selected, touching)
+}
+
+// trainCounts counts the training points (train, longitude-latitude)
+// inside each unit.
+func (b *builder) trainCounts(units []Unit, train []LonLat) []int {
 	// Training points in grid CRS.
-	lats, lons := splitLL(spec.Train)
+	lats, lons := splitLL(train)
 	xs := make([]float64, len(lons))
 	ys := make([]float64, len(lats))
 	b.g.FromLonLat(lons, lats, xs, ys)
@@ -42,22 +61,30 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 			}
 		}
 	}
-	var selected, touching []int
-	var sel *godal.Geometry
+	return counts
+}
+
+// selectUnits returns the units with at least k training points (counts)
+// and their union (nil with none); path names the layer in errors.
+func selectUnits(units []Unit, counts []int, k int, path string) (selected []int, sel *godal.Geometry, err error) {
 	for i, c := range counts {
 		if c >= k {
 			selected = append(selected, i)
 			if sel == nil {
 				sel = units[i].geom
 			} else if sel, err = sel.Union(units[i].geom); err != nil {
-				return fmt.Errorf("extent: %s: union of units failed (%s); check the unit geometries in a GIS", spec.Ecoregions, gdalmsg.Cause(err.Error()))
+				return nil, nil, fmt.Errorf("extent: %s: union of units failed (%s); check the unit geometries in a GIS", path, gdalmsg.Cause(err.Error()))
 			}
 		}
 	}
-	if len(selected) == 0 {
-		b.f.Warnings = append(b.f.Warnings, fmt.Sprintf("no unit of %s holds %d or more training points; no ecoregion extents", spec.Ecoregions, k))
-		return nil
-	}
+	return selected, sel, nil
+}
+
+// touchingUnits returns the units with fewer than k training points
+// (counts) that touch sel, the union of the selected units; path names
+// the layer in errors.
+func (b *builder) touchingUnits(units []Unit, counts []int, k int, sel *godal.Geometry, path string) ([]int, error) {
+	var touching []int
 	// On a latitude-longitude grid the units keep their longitudes as
 	// written for this test, while each is filled where it meets the grid
 	// (moved by whole turns): units on either side of 180 degrees, written
@@ -68,7 +95,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		for _, d := range []float64{-360, 360} {
 			moved, err := shiftLon(sel, d, b.g.srs)
 			if err != nil {
-				return fmt.Errorf("extent: %s: the selected units cannot be moved by %g degrees (%s)", spec.Ecoregions, d, gdalmsg.Cause(err.Error()))
+				return nil, fmt.Errorf("extent: %s: the selected units cannot be moved by %g degrees (%s)", path, d, gdalmsg.Cause(err.Error()))
 			}
 			defer moved.Close()
 			sels = append(sels, moved)
@@ -81,7 +108,7 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 		for _, s := range sels {
 			hit, err := units[i].geom.Intersects(s)
 			if err != nil {
-				return fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", spec.Ecoregions, units[i].ID, gdalmsg.Cause(err.Error()))
+				return nil, fmt.Errorf("extent: %s unit %q: the touching test failed (%s); check the unit geometries in a GIS", path, units[i].ID, gdalmsg.Cause(err.Error()))
 			}
 			if hit {
 				touching = append(touching, i)
@@ -89,6 +116,14 @@ func (b *builder) ecoregions(spec Spec, baseK int, trainCells []int) error {
 			}
 		}
 	}
+	return touching, nil
+}
+
+// addEcoregions adds the ecoregion members: the selected units (at least
+// k training points), the same plus the touching units, and with
+// --ecoregion-clip both clipped to the base extent (member baseK), each
+// chain in order.
+func (b *builder) addEcoregions(spec Spec, baseK, k int, units []Unit, selected, touching []int) error {
 	ids := func(ix []int) string {
 		s := ""
 		for n, i := range ix {
