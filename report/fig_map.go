@@ -891,34 +891,7 @@ func mapFigure(r *Results) (figure, bool) {
 		}
 	}
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
-	f.Caption = fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
-		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
-		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
-		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
-		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
-		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
-		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", maxNamed, model, model)
-	thinned := 0
-	for _, g := range groups {
-		thinned += mapKeyOf(r, g).thinned
-	}
-	if thinned > 0 {
-		f.Caption += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
-			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
-	}
-	f.Caption += " Outlines are drawn over the training and test points and under the omission marks."
-	for _, l := range marks.layers {
-		if strings.HasSuffix(l.label, " marks)") {
-			f.Caption += fmt.Sprintf(" A layer of more than %d points is drawn with one mark where several fall within 1/%d of the map's width (the key gives both counts).", crowdedMarks, markLattice)
-			break
-		}
-	}
-	if left > 0 {
-		f.Caption += fmt.Sprintf(" %d more panels (%s) do not fit on the page; extents.gpkg holds every extent's outline.", left, leftTitles(all, left))
-	}
-	if r.Grid.Geographic {
-		f.Caption += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
-	}
+	f.Caption = mapCaption(r, model, groups, all, marks, left)
 	// One scene for the three formats (they are drawn at the same time):
 	// the preview decoded and every extent's outline traced once.
 	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups) })
@@ -940,30 +913,89 @@ func mapFigure(r *Results) (figure, bool) {
 				return err
 			}
 		}
-		// Shared key: point marks, suitability colour bar, scale and north.
-		var keyC, barC draw.Canvas
-		rowsDrawn := sharedRows
-		if inCell {
-			c := rest
-			c.Min.X = rest.Min.X + vg.Length(len(groups)%cols)*cellW
-			c.Max.Y = rest.Max.Y - vg.Length(rows-1)*cellH - vg.Points(6)
-			keyC, barC = splitTop(c, vg.Length(len(cellRows))*legendRowHeight+vg.Points(4))
-			barC.Min.Y = barC.Max.Y - keyH
-			rowsDrawn = cellRows
-		} else {
-			keyC, barC = splitRight(bottom, f.W/2)
-			keyC.Max.Y -= vg.Points(6)
-		}
-		barC.Min.X += vg.Points(8)
-		drawLegendRows(keyC, rowsDrawn)
-		barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
-		drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model, barPixels(pv.Width).suitability)
-		if kmPerPt > 0 {
-			drawScaleBar(scaleC, kmPerPt)
-		}
+		drawMapKey(mapKeyPlace{rest: rest, bottom: bottom, inCell: inCell, panels: len(groups), cols: cols, rows: rows, cellW: cellW, cellH: cellH, w: f.W, keyH: keyH},
+			sharedRows, cellRows, pv, model, kmPerPt)
 		return nil
 	}
 	return f, true
+}
+
+// mapCaption is the map figure's caption: how to read the panels, the
+// outlines, the background (model's suitability) and the marks, with
+// notes on thinned outlines and crowded marks, the panels left off the
+// page (left of all), and the scale bar's parallel.
+func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int) string {
+	pv := r.Preview
+	south, north := pv.Bounds[1], pv.Bounds[3]
+	c := fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
+		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
+		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
+		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
+		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
+		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
+		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", maxNamed, model, model)
+	thinned := 0
+	for _, g := range groups {
+		thinned += mapKeyOf(r, g).thinned
+	}
+	if thinned > 0 {
+		c += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
+			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
+	}
+	c += " Outlines are drawn over the training and test points and under the omission marks."
+	for _, l := range marks.layers {
+		if strings.HasSuffix(l.label, " marks)") {
+			c += fmt.Sprintf(" A layer of more than %d points is drawn with one mark where several fall within 1/%d of the map's width (the key gives both counts).", crowdedMarks, markLattice)
+			break
+		}
+	}
+	if left > 0 {
+		c += fmt.Sprintf(" %d more panels (%s) do not fit on the page; extents.gpkg holds every extent's outline.", left, leftTitles(all, left))
+	}
+	if r.Grid.Geographic {
+		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
+	}
+	return c
+}
+
+// mapKeyPlace is where the map figure's shared key goes: in the free
+// cells after the last panel (inCell; panels in cols columns and rows
+// rows of cellW x cellH in rest) or in the band under the panels
+// (bottom, beside the figure's half width w/2); keyH is the height of its
+// bars.
+type mapKeyPlace struct {
+	rest, bottom draw.Canvas
+	inCell       bool
+	panels       int
+	cols, rows   int
+	cellW, cellH vg.Length
+	w, keyH      vg.Length
+}
+
+// drawMapKey draws the map figure's shared key at at: the point marks
+// (sharedRows in the band, cellRows in a cell), the suitability colour
+// bar of model, and the scale bar (kmPerPt > 0).
+func drawMapKey(at mapKeyPlace, sharedRows, cellRows [][]legendItem, pv *Preview, model string, kmPerPt float64) {
+	var keyC, barC draw.Canvas
+	rowsDrawn := sharedRows
+	if at.inCell {
+		c := at.rest
+		c.Min.X = at.rest.Min.X + vg.Length(at.panels%at.cols)*at.cellW
+		c.Max.Y = at.rest.Max.Y - vg.Length(at.rows-1)*at.cellH - vg.Points(6)
+		keyC, barC = splitTop(c, vg.Length(len(cellRows))*legendRowHeight+vg.Points(4))
+		barC.Min.Y = barC.Max.Y - at.keyH
+		rowsDrawn = cellRows
+	} else {
+		keyC, barC = splitRight(at.bottom, at.w/2)
+		keyC.Max.Y -= vg.Points(6)
+	}
+	barC.Min.X += vg.Points(8)
+	drawLegendRows(keyC, rowsDrawn)
+	barTop, scaleC := splitTop(barC, 14*vg.Millimeter)
+	drawSuitabilityBar(barTop, pv.ValueMin, pv.ValueMax, model, barPixels(pv.Width).suitability)
+	if kmPerPt > 0 {
+		drawScaleBar(scaleC, kmPerPt)
+	}
 }
 
 // fitAspect sets the axis ranges of p so that the data keep their aspect
