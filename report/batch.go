@@ -208,71 +208,78 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 			continue
 		}
 		s.Counts.Succeeded++
-		r := st.Results
-		if s.Software == (Software{}) {
-			s.Software = r.Software
-		}
-		sens := r.Sensitivity
-		ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
-		ss.StandIn = standInReason(r)
-		ss.Occurrences = occurrenceHash(r)
-		for _, e := range r.Extents {
-			if e.ID == sens.BaseExtent {
-				ss.BaseAreaKm2 = e.AreaKm2
-			}
-		}
-		ss.Models = append(ss.Models, sens.ModelNames...)
-		ss.Verdict = JudgementUndetermined
-		for _, v := range sens.Verdicts {
-			if v.Metric == "auc" {
-				ss.Verdict = v.Verdict
-			}
-		}
-		s.Counts.add(ss.Verdict, &s.Counts.Sensitive, &s.Counts.Robust, &s.Counts.Undetermined)
-		if ss.StandIn != "" {
-			s.Counts.StandIn++
-		}
-		judged := false
-		for _, model := range sens.ModelNames {
-			row := studyRow(r, st.ID, model)
-			s.Rows = append(s.Rows, row)
-			judged = judged || row.Judged
-			s.Counts.Pairs++
-			s.Counts.add(row.Verdict, &s.Counts.PairsSensitive, &s.Counts.PairsRobust, &s.Counts.PairsUndetermined)
-			if row.Verdict == JudgementUndetermined && !row.Judged {
-				s.Counts.PairsNotJudged++
-			}
-			if row.Null != "" {
-				s.Counts.NullPairs++
-				if row.NullKind == NullDistance {
-					s.Counts.NullDistance++
-				}
-				switch row.NullReading {
-				case ReadingAbove:
-					s.Counts.Above++
-				case ReadingNotAbove:
-					s.Counts.NotAbove++
-				case ReadingBelow:
-					s.Counts.Below++
-				case ReadingTooFew:
-					s.Counts.TooFew++
-				}
-			}
-			if !slices.Contains(s.Tolerances, row.Tolerance) {
-				s.Tolerances = append(s.Tolerances, row.Tolerance)
-			}
-		}
-		if ss.Verdict == JudgementUndetermined && !judged {
-			ss.NotJudged = true
-			s.Counts.NotJudged++
-		}
+		s.addStudy(st, &ss)
 		s.Studies = append(s.Studies, ss)
-		for _, mv := range sens.ModelVerdicts {
+		for _, mv := range st.Results.Sensitivity.ModelVerdicts {
 			s.Verdicts = append(s.Verdicts, batchVerdict(st.ID, mv))
 		}
 	}
 	slices.Sort(s.Tolerances)
 	return s, nil
+}
+
+// addStudy adds a study that was analysed to the summary: its base
+// extent, models and AUC verdict into ss, one row per model (with its
+// verdict and its reading against a null) and the counts.
+func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
+	r := st.Results
+	if s.Software == (Software{}) {
+		s.Software = r.Software
+	}
+	sens := r.Sensitivity
+	ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
+	ss.StandIn = standInReason(r)
+	ss.Occurrences = occurrenceHash(r)
+	for _, e := range r.Extents {
+		if e.ID == sens.BaseExtent {
+			ss.BaseAreaKm2 = e.AreaKm2
+		}
+	}
+	ss.Models = append(ss.Models, sens.ModelNames...)
+	ss.Verdict = JudgementUndetermined
+	for _, v := range sens.Verdicts {
+		if v.Metric == "auc" {
+			ss.Verdict = v.Verdict
+		}
+	}
+	s.Counts.add(ss.Verdict, &s.Counts.Sensitive, &s.Counts.Robust, &s.Counts.Undetermined)
+	if ss.StandIn != "" {
+		s.Counts.StandIn++
+	}
+	judged := false
+	for _, model := range sens.ModelNames {
+		row := studyRow(r, st.ID, model)
+		s.Rows = append(s.Rows, row)
+		judged = judged || row.Judged
+		s.Counts.Pairs++
+		s.Counts.add(row.Verdict, &s.Counts.PairsSensitive, &s.Counts.PairsRobust, &s.Counts.PairsUndetermined)
+		if row.Verdict == JudgementUndetermined && !row.Judged {
+			s.Counts.PairsNotJudged++
+		}
+		if row.Null != "" {
+			s.Counts.NullPairs++
+			if row.NullKind == NullDistance {
+				s.Counts.NullDistance++
+			}
+			switch row.NullReading {
+			case ReadingAbove:
+				s.Counts.Above++
+			case ReadingNotAbove:
+				s.Counts.NotAbove++
+			case ReadingBelow:
+				s.Counts.Below++
+			case ReadingTooFew:
+				s.Counts.TooFew++
+			}
+		}
+		if !slices.Contains(s.Tolerances, row.Tolerance) {
+			s.Tolerances = append(s.Tolerances, row.Tolerance)
+		}
+	}
+	if ss.Verdict == JudgementUndetermined && !judged {
+		ss.NotJudged = true
+		s.Counts.NotJudged++
+	}
 }
 
 // add counts verdict v into the matching counter.
