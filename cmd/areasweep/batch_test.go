@@ -12,6 +12,8 @@ import (
 	"strings"
 	"sync"
 	"testing"
+
+	"areasweep/cmd/internal/smallstudy"
 )
 
 // batchShared holds the inputs the batch tests share and the plain runs
@@ -80,26 +82,7 @@ func plainRun(t *testing.T, s *smallStudy, seed string, models ...string) string
 // passes every check of the table and fails when it runs.
 func batchTable(t *testing.T, s *smallStudy) string {
 	t.Helper()
-	far := filepath.Join(s.dir, "occ_far.csv")
-	if err := os.WriteFile(far, []byte("lon,lat,role\n100.5,10.5,train\n100.6,10.4,test\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	table := filepath.Join(s.dir, "studies.csv")
-	body := `# region-buffers: -40,60
-# point-buffers: 40
-# hull-buffers: 0
-# e: 0.05
-# iterations: 30
-# seed: 9
-id,model,occurrences,region,seed
-alpha,m=model.tif;sq=model2.tif,occ.csv,region.geojson,9
-beta,m=model.tif,occ.csv,region.geojson,11
-broken,m=model.tif,occ_far.csv,region.geojson,9
-`
-	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return table
+	return smallstudy.BatchTable(t, s.dir)
 }
 
 // studyArgs is the run command line equivalent to a row of batchTable.

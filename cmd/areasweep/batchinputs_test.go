@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/smallstudy"
 )
 
 // inputsStudy copies the shared small study's model, region and
@@ -23,33 +24,7 @@ func inputsStudy(t *testing.T) (dir, table string) {
 	t.Helper()
 	s := sharedStudy(t)
 	dir = t.TempDir()
-	for src, name := range map[string]string{s.model: "model.tif", s.region: "region.geojson", s.occ: "occ.csv"} {
-		b, err := os.ReadFile(src)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		if name == "occ.csv" {
-			if err := os.WriteFile(filepath.Join(dir, "occ_b.csv"), b, 0o644); err != nil {
-				t.Fatal(err)
-			}
-		}
-	}
-	aux := `<PAMDataset><Metadata><MDI key="note">made by hand</MDI></Metadata></PAMDataset>` + "\n"
-	if err := os.WriteFile(filepath.Join(dir, "model.tif.aux.xml"), []byte(aux), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	table = filepath.Join(dir, "studies.csv")
-	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n# iterations: 30\n" +
-		"id,model,occurrences,region\n" +
-		"a,m=model.tif,occ.csv,region.geojson\n" +
-		"b,m=model.tif,occ_b.csv,region.geojson\n"
-	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return dir, table
+	return dir, smallstudy.Inputs(t, dir, s.model, s.region, s.occ)
 }
 
 // laterTime sets path's modification time an hour ahead, so that a

@@ -13,6 +13,7 @@ import (
 
 	"github.com/airbusgeo/godal"
 
+	"areasweep/cmd/internal/smallstudy"
 	"areasweep/extent/vocab"
 	"areasweep/report"
 )
@@ -64,10 +65,8 @@ func exitCode(err error) int {
 	return -1
 }
 
-// smallStudy is a tiny generated study on a latitude-longitude grid: 48 x
-// 32 cells of 0.25 degrees between 40 and 48 N, so cell areas differ by
-// row. Values: a smooth ridge in [0,1] rounded to 1/50 (ties on purpose),
-// no-data in one corner.
+// smallStudy is smallstudy.Study (the tiny generated study: see there)
+// with the names these tests use.
 type smallStudy struct {
 	dir, model, model2, occ, region, far string
 	vals                                 []float64 // row-major, NaN = no data
@@ -75,85 +74,19 @@ type smallStudy struct {
 	gt                                   [6]float64
 }
 
-const smallNoData = -1
+const smallNoData = smallstudy.NoData
 
+// writeRaster writes vals as a tiled Float32 GeoTIFF (smallstudy.WriteRaster).
 func writeRaster(t *testing.T, path string, w, h int, gt [6]float64, vals []float64, withCRS bool) {
 	t.Helper()
-	ds, err := godal.Create(godal.GTiff, path, 1, godal.Float32, w, h, godal.CreationOption("TILED=YES", "BLOCKXSIZE=16", "BLOCKYSIZE=16"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := ds.SetGeoTransform(gt); err != nil {
-		t.Fatal(err)
-	}
-	if withCRS {
-		sr, _ := godal.NewSpatialRefFromEPSG(4326)
-		if err := ds.SetSpatialRef(sr); err != nil {
-			t.Fatal(err)
-		}
-	}
-	b := ds.Bands()[0]
-	b.SetNoData(smallNoData)
-	buf := make([]float32, len(vals))
-	for i, v := range vals {
-		if math.IsNaN(v) {
-			buf[i] = smallNoData
-		} else {
-			buf[i] = float32(v)
-		}
-	}
-	if err := b.Write(0, 0, buf, w, h); err != nil {
-		t.Fatal(err)
-	}
-	if err := ds.Close(); err != nil {
-		t.Fatal(err)
-	}
+	smallstudy.WriteRaster(t, path, w, h, gt, vals, withCRS)
 }
 
+// newSmallStudy writes smallstudy's study into a temporary folder.
 func newSmallStudy(t *testing.T) *smallStudy {
 	t.Helper()
-	s := &smallStudy{dir: t.TempDir(), w: 48, h: 32, gt: [6]float64{10, 0.25, 0, 48, 0, -0.25}}
-	s.vals = make([]float64, s.w*s.h)
-	for r := 0; r < s.h; r++ {
-		for c := 0; c < s.w; c++ {
-			lon, lat := 10+(float64(c)+0.5)*0.25, 48-(float64(r)+0.5)*0.25
-			v := math.Exp(-((lon-15)*(lon-15)/8 + (lat-44)*(lat-44)/4))
-			v = math.Round(v*50) / 50
-			if c >= 44 && r >= 28 {
-				v = math.NaN()
-			}
-			// As stored in the Float32 raster.
-			s.vals[r*s.w+c] = float64(float32(v))
-		}
-	}
-	s.model = filepath.Join(s.dir, "model.tif")
-	writeRaster(t, s.model, s.w, s.h, s.gt, s.vals, true)
-	// A second model: same grid, values squared (same ranking: same AUC).
-	v2 := make([]float64, len(s.vals))
-	for i, v := range s.vals {
-		v2[i] = v * v
-	}
-	s.model2 = filepath.Join(s.dir, "model2.tif")
-	writeRaster(t, s.model2, s.w, s.h, s.gt, v2, true)
-	// Occurrences near the ridge: train on a lattice, test between.
-	var sb strings.Builder
-	sb.WriteString("lon,lat,role\n")
-	for i := 0; i < 6; i++ {
-		for j := 0; j < 4; j++ {
-			sb.WriteString(fmt.Sprintf("%.3f,%.3f,train\n", 13.1+float64(i)*0.8, 42.6+float64(j)*0.9))
-			sb.WriteString(fmt.Sprintf("%.3f,%.3f,test\n", 13.5+float64(i)*0.8, 43.0+float64(j)*0.9))
-		}
-	}
-	// One far test point and one point outside the raster.
-	sb.WriteString("10.6,47.6,test\n")
-	sb.WriteString("30.0,47.0,test\n")
-	s.occ = filepath.Join(s.dir, "occ.csv")
-	os.WriteFile(s.occ, []byte(sb.String()), 0o644)
-	s.region = filepath.Join(s.dir, "region.geojson")
-	os.WriteFile(s.region, []byte(`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:OGC:1.3:CRS84"}},"features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[12.5,41.5],[18.5,41.5],[18.5,46.5],[12.5,46.5],[12.5,41.5]]]}}]}`), 0o644)
-	s.far = filepath.Join(s.dir, "far.geojson")
-	os.WriteFile(s.far, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[100,10],[101,10],[101,11],[100,11],[100,10]]]}}]}`), 0o644)
-	return s
+	g := smallstudy.New(t, t.TempDir())
+	return &smallStudy{dir: g.Dir, model: g.Model, model2: g.Model2, occ: g.Occ, region: g.Region, far: g.Far, vals: g.Vals, w: g.W, h: g.H, gt: g.GT}
 }
 
 // cellAreaKm2 is the WGS84 area of a latitude-longitude cell by the

@@ -46,7 +46,7 @@ func TestBatchSettingsHashIgnoresHowTableIsNamed(t *testing.T) {
 		}
 	}
 	// Another input must still change it.
-	byAbs[1].opts.Occurrences = s.far
+	byAbs[1].opts.Occurrences = s.Far
 	if h := batch.SettingsHash(canonicalSettings(byAbs[1].opts)); h == byRel[1].settings {
 		t.Error("another occurrence file gave the same settings checksum")
 	}
