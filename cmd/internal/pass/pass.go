@@ -576,29 +576,12 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 		workers = runtime.GOMAXPROCS(0)
 	}
 	n := len(fam.Members)
-	nx := (p.width + p.blockW - 1) / p.blockW
-	first, end := 0, nx*((p.height+p.blockH-1)/p.blockH)
-	rows := RowRange{0, p.height}
-	if rr := opt.RowRange; rr != nil {
-		// Blocks are numbered row-major, so the blocks meeting rows
-		// [First, End) are one range of indices.
-		rows = RowRange{max(rr.First, 0), min(rr.End, p.height)}
-		first, end = 0, 0
-		if rows.End > rows.First {
-			first, end = rows.First/p.blockH*nx, (rows.End+p.blockH-1)/p.blockH*nx
-		}
-	}
-	type partial struct {
-		accs  []*metrics.Accumulator
-		stats Stats
-		err   error
-	}
+	r := &passRun{p: p, g: g, layout: layout, opt: opt, nx: (p.width + p.blockW - 1) / p.blockW}
+	r.first, r.end, r.rows = r.blockRange()
+	r.bands = newBands(fam, groups, p.width, r.nx, p.blockH, r.rows)
 	parts := make([]partial, workers)
 	doneBlocks := make(chan struct{}, workers)
-	var next atomic.Int64
-	var failed atomic.Bool
 	var wg sync.WaitGroup
-	bands := newBands(fam, groups, p.width, nx, p.blockH, rows)
 	for w := 0; w < workers; w++ {
 		accs := make([]*metrics.Accumulator, n)
 		for k := range accs {
@@ -608,70 +591,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 		wg.Add(1)
 		go func(pt *partial) {
 			defer wg.Done()
-			defer func() {
-				// A bug in a worker becomes an error of the pass instead of
-				// killing the process; the other workers stop at their
-				// next block.
-				if v := recover(); v != nil {
-					pt.err = &InternalError{fmt.Errorf("pass: internal error in a scoring worker: %v\n%s", v, debug.Stack())}
-					failed.Store(true)
-				}
-			}()
-			src, err := p.open()
-			if err != nil {
-				pt.err = err
-				failed.Store(true)
-				return
-			}
-			defer src.Close()
-			ws := newWorkerState(p.blockW, p.blockH)
-			// Statistics stay local until the end: workers' partials sit
-			// side by side in memory and per-cell writes would share cache lines.
-			var st Stats
-			for !failed.Load() {
-				i := first + int(next.Add(1)-1)
-				if i >= end {
-					break
-				}
-				x0, y0 := (i%nx)*p.blockW, (i/nx)*p.blockH
-				b := block{x0: x0, y0: y0, w: min(p.blockW, p.width-x0), h: min(p.blockH, p.height-y0)}
-				if b.y0 < rows.First || b.y0+b.h > rows.End {
-					b.y0 = max(b.y0, rows.First)
-					b.h = min(y0+b.h, rows.End) - b.y0
-				}
-				b.buf = ws.buf[:b.w*b.h]
-				// The block's plan before its cells: a planned source
-				// reads by it.
-				by := i / nx
-				bd := bands.get(by, ws)
-				ws.planBlock(bd, b)
-				if ps, ok := src.(planned); ok {
-					ps.usePlan(ws)
-				}
-				if !p.kept.take(i, b) {
-					if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
-						pt.err = err
-						failed.Store(true)
-						break
-					}
-				}
-				p.decode(b.buf)
-				if sh, ok := src.(shower); ok && (opt.Preview != nil || opt.Rows != nil) {
-					// Only the preview and the row hook see them.
-					b.shown = sh.shownValues(b.w * b.h)
-				}
-				if !st.AnyValid {
-					st.AnyValid = slices.ContainsFunc(b.buf, valid)
-				}
-				if err := scoreBlock(g, layout, b, pt.accs, &st, ws, opt); err != nil {
-					pt.err = err
-					failed.Store(true)
-					break
-				}
-				bands.done(by, bd)
-				doneBlocks <- struct{}{}
-			}
-			pt.stats = st
+			r.work(pt, doneBlocks)
 		}(&parts[w])
 	}
 	go func() { wg.Wait(); close(doneBlocks) }()
@@ -679,9 +599,135 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	for range doneBlocks {
 		done++
 		if opt.Progress != nil {
-			opt.Progress(done, end-first)
+			opt.Progress(done, r.end-r.first)
 		}
 	}
+	return mergeParts(parts, groups)
+}
+
+// passRun is one pass's shared state: the plan, the blocks to score
+// (indices [first, end), row-major with nx a row, restricted to rows),
+// the band plans, the next block to take and whether a worker failed.
+type passRun struct {
+	p          plan
+	g          *extent.Grid
+	layout     *metrics.Layout
+	opt        Options
+	nx         int
+	first, end int
+	rows       RowRange
+	bands      *bands
+	next       atomic.Int64
+	failed     atomic.Bool
+}
+
+// partial is one worker's sums, statistics and error.
+type partial struct {
+	accs  []*metrics.Accumulator
+	stats Stats
+	err   error
+}
+
+// blockRange returns the indices [first, end) of the blocks to score and
+// the rows they are scored for: every block, or those meeting
+// Options.RowRange.
+func (r *passRun) blockRange() (first, end int, rows RowRange) {
+	p := r.p
+	first, end = 0, r.nx*((p.height+p.blockH-1)/p.blockH)
+	rows = RowRange{0, p.height}
+	if rr := r.opt.RowRange; rr != nil {
+		// Blocks are numbered row-major, so the blocks meeting rows
+		// [First, End) are one range of indices.
+		rows = RowRange{max(rr.First, 0), min(rr.End, p.height)}
+		first, end = 0, 0
+		if rows.End > rows.First {
+			first, end = rows.First/p.blockH*r.nx, (rows.End+p.blockH-1)/p.blockH*r.nx
+		}
+	}
+	return first, end, rows
+}
+
+// work is one worker: it opens its own source and scores blocks taken
+// from the shared counter into pt until none is left or a worker failed,
+// sending a token on done for each block scored.
+func (r *passRun) work(pt *partial, done chan<- struct{}) {
+	defer func() {
+		// A bug in a worker becomes an error of the pass instead of
+		// killing the process; the other workers stop at their next
+		// block.
+		if v := recover(); v != nil {
+			pt.err = &InternalError{fmt.Errorf("pass: internal error in a scoring worker: %v\n%s", v, debug.Stack())}
+			r.failed.Store(true)
+		}
+	}()
+	src, err := r.p.open()
+	if err != nil {
+		pt.err = err
+		r.failed.Store(true)
+		return
+	}
+	defer src.Close()
+	ws := newWorkerState(r.p.blockW, r.p.blockH)
+	// Statistics stay local until the end: workers' partials sit side by
+	// side in memory and per-cell writes would share cache lines.
+	var st Stats
+	for !r.failed.Load() {
+		i := r.first + int(r.next.Add(1)-1)
+		if i >= r.end {
+			break
+		}
+		if err := r.block(i, src, ws, pt.accs, &st); err != nil {
+			pt.err = err
+			r.failed.Store(true)
+			break
+		}
+		done <- struct{}{}
+	}
+	pt.stats = st
+}
+
+// block scores block i: its plan first (a planned source reads by it),
+// then its cells (kept from sampling, or read), added to accs.
+func (r *passRun) block(i int, src Source, ws *workerState, accs []*metrics.Accumulator, st *Stats) error {
+	p, opt := r.p, r.opt
+	x0, y0 := (i%r.nx)*p.blockW, (i/r.nx)*p.blockH
+	b := block{x0: x0, y0: y0, w: min(p.blockW, p.width-x0), h: min(p.blockH, p.height-y0)}
+	if b.y0 < r.rows.First || b.y0+b.h > r.rows.End {
+		b.y0 = max(b.y0, r.rows.First)
+		b.h = min(y0+b.h, r.rows.End) - b.y0
+	}
+	b.buf = ws.buf[:b.w*b.h]
+	by := i / r.nx
+	bd := r.bands.get(by, ws)
+	ws.planBlock(bd, b)
+	if ps, ok := src.(planned); ok {
+		ps.usePlan(ws)
+	}
+	if !p.kept.take(i, b) {
+		if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
+			return err
+		}
+	}
+	p.decode(b.buf)
+	if sh, ok := src.(shower); ok && (opt.Preview != nil || opt.Rows != nil) {
+		// Only the preview and the row hook see them.
+		b.shown = sh.shownValues(b.w * b.h)
+	}
+	if !st.AnyValid {
+		st.AnyValid = slices.ContainsFunc(b.buf, valid)
+	}
+	if err := scoreBlock(r.g, r.layout, b, accs, st, ws, opt); err != nil {
+		return err
+	}
+	r.bands.done(by, bd)
+	return nil
+}
+
+// mergeParts merges the workers' sums and statistics, then each nested
+// sequence's sums up the sequence: each member so far holds only the
+// cells where it is the smallest of its sequence, and merging gives it
+// all of its cells.
+func mergeParts(parts []partial, groups [][]int) ([]*metrics.Accumulator, Stats, error) {
 	for w := range parts {
 		if parts[w].err != nil {
 			return nil, Stats{}, parts[w].err
@@ -689,7 +735,7 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	}
 	out := parts[0].accs
 	stats := parts[0].stats
-	for w := 1; w < workers; w++ {
+	for w := 1; w < len(parts); w++ {
 		for k := range out {
 			if err := out[k].Merge(parts[w].accs[k]); err != nil {
 				return nil, Stats{}, &InternalError{fmt.Errorf("pass: merging the workers' sums: %w", err)}
@@ -697,8 +743,6 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 		}
 		stats.merge(parts[w].stats)
 	}
-	// Each member so far holds only the cells where it is the smallest of
-	// its sequence; merging up the sequence gives it all of its cells.
 	for _, seq := range groups {
 		for j := 1; j < len(seq); j++ {
 			if err := out[seq[j]].Merge(out[seq[j-1]]); err != nil {
