@@ -564,25 +564,17 @@ func (ws *workerState) share(layout *metrics.Layout, accs []*metrics.Accumulator
 // (planBlock, called before).
 func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics.Accumulator, st *Stats, ws *workerState, opt Options) error {
 	ws.share(layout, accs)
-	pv, validCells := opt.Preview, opt.Valid
 	x1 := b.x0 + b.w
 	bins := ws.bins[:b.w]
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
-		base := row*g.Width + b.x0
 		vals := b.buf[y*b.w : (y+1)*b.w]
 		shown := vals
 		if b.shown != nil {
 			shown = b.shown[y*b.w : (y+1)*b.w]
 		}
-		if pv != nil {
-			if prow := pv.srcRow[row]; prow >= 0 {
-				for x, v := range shown {
-					if pc := pv.srcCol[b.x0+x]; pc >= 0 && valid(v) {
-						pv.Values[prow*pv.Width+pc] = v
-					}
-				}
-			}
+		if opt.Preview != nil {
+			opt.Preview.copyRow(row, b.x0, shown)
 		}
 		segs := ws.segs[ws.sRow[y]:ws.sRow[y+1]]
 		if len(segs) == 0 {
@@ -592,83 +584,8 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
-		vword, vbits := -1, uint64(0)
-		// The statistics in locals: st is written back once per row.
-		mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
-		for j := 0; j < len(segs); {
-			// Segments that touch are located as one run when the row's
-			// cells have one positive weight: the statistics are then
-			// those of the same cells (the area grows with every run
-			// that has a cell, so no run is taken for the first).
-			s := segs[j]
-			for j++; rowW > 0 && j < len(segs) && segs[j].x0 == s.x1; j++ {
-				s.x1 = segs[j].x1
-			}
-			sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
-			n, lo, hi := layout.LocateRow(sv, sb)
-			if n == 0 {
-				continue
-			}
-			if validCells != nil {
-				// Bits are gathered per 64-bit word and set with one
-				// atomic OR per word (blocks of other workers may share
-				// the word at their edges).
-				for x, bin := range sb {
-					if bin < 0 {
-						continue
-					}
-					i := base + int(s.x0) + x
-					if i>>6 != vword {
-						if vbits != 0 {
-							validCells.OrAtomic(vword, vbits)
-						}
-						vword, vbits = i>>6, 0
-					}
-					vbits |= 1 << (uint(i) & 63)
-				}
-			}
-			segArea := int64(n) * rowW
-			if rowW < 0 {
-				segArea = 0
-				for x, bin := range sb {
-					if bin >= 0 {
-						segArea += sw[x]
-					}
-				}
-			}
-			switch {
-			case area == 0 || lo < mn:
-				if area == 0 {
-					mx = hi
-				}
-				mn, floorArea = lo, areaAt(sb, sv, sw, lo)
-			case lo == mn:
-				floorArea += areaAt(sb, sv, sw, lo)
-			}
-			if hi > mx {
-				mx = hi
-			}
-			area += segArea
-		}
-		st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
-		if vbits != 0 {
-			validCells.OrAtomic(vword, vbits)
-		}
-		for _, s := range segs {
-			if a := ws.sigAcc[s.sig]; a != nil {
-				a.AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
-				continue
-			}
-			if ms := ws.members(s.sig); len(ms) == 1 {
-				accs[ms[0]].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
-			} else {
-				ws.dst = ws.dst[:0]
-				for _, k := range ms {
-					ws.dst = append(ws.dst, accs[k])
-				}
-				metrics.AddRowTo(ws.dst, bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
-			}
-		}
+		locateSegments(layout, segs, bins, vals, weights, rowW, st, opt.Valid, row*g.Width+b.x0)
+		ws.addSegments(accs, segs, bins, vals, weights)
 	}
 	// The shared sums into each of their members.
 	for _, sh := range ws.sigAcc {
@@ -681,6 +598,112 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		ws.free = append(ws.free, sh)
 	}
 	return nil
+}
+
+// copyRow copies the valid values of a block row (grid row, from column
+// x0) into the preview cells that take their value from it.
+func (pv *Preview) copyRow(row, x0 int, vals []float64) {
+	prow := pv.srcRow[row]
+	if prow < 0 {
+		return
+	}
+	for x, v := range vals {
+		if pc := pv.srcCol[x0+x]; pc >= 0 && valid(v) {
+			pv.Values[prow*pv.Width+pc] = v
+		}
+	}
+}
+
+// locateSegments locates the values of a block row's segments in the
+// layout's bins (bins), adds their cells to the statistics st (minimum,
+// maximum, the area at the minimum, the area; rowW the row's one cell
+// weight, or negative when its cells differ) and, with validCells, sets
+// the bits of the valid cells (base: the grid index of the row's first
+// cell in the block).
+func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, validCells extent.Valid, base int) {
+	vword, vbits := -1, uint64(0)
+	// The statistics in locals: st is written back once per row.
+	mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
+	for j := 0; j < len(segs); {
+		// Segments that touch are located as one run when the row's
+		// cells have one positive weight: the statistics are then
+		// those of the same cells (the area grows with every run
+		// that has a cell, so no run is taken for the first).
+		s := segs[j]
+		for j++; rowW > 0 && j < len(segs) && segs[j].x0 == s.x1; j++ {
+			s.x1 = segs[j].x1
+		}
+		sb, sv, sw := bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1]
+		n, lo, hi := layout.LocateRow(sv, sb)
+		if n == 0 {
+			continue
+		}
+		if validCells != nil {
+			// Bits are gathered per 64-bit word and set with one
+			// atomic OR per word (blocks of other workers may share
+			// the word at their edges).
+			for x, bin := range sb {
+				if bin < 0 {
+					continue
+				}
+				i := base + int(s.x0) + x
+				if i>>6 != vword {
+					if vbits != 0 {
+						validCells.OrAtomic(vword, vbits)
+					}
+					vword, vbits = i>>6, 0
+				}
+				vbits |= 1 << (uint(i) & 63)
+			}
+		}
+		segArea := int64(n) * rowW
+		if rowW < 0 {
+			segArea = 0
+			for x, bin := range sb {
+				if bin >= 0 {
+					segArea += sw[x]
+				}
+			}
+		}
+		switch {
+		case area == 0 || lo < mn:
+			if area == 0 {
+				mx = hi
+			}
+			mn, floorArea = lo, areaAt(sb, sv, sw, lo)
+		case lo == mn:
+			floorArea += areaAt(sb, sv, sw, lo)
+		}
+		if hi > mx {
+			mx = hi
+		}
+		area += segArea
+	}
+	st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
+	if vbits != 0 {
+		validCells.OrAtomic(vword, vbits)
+	}
+}
+
+// addSegments adds a block row's segments (their bins, values and
+// weights) to the sums of their members: to the signature's shared sums
+// when it has them, else to each member's.
+func (ws *workerState) addSegments(accs []*metrics.Accumulator, segs []segment, bins []int32, vals []float64, weights []int64) {
+	for _, s := range segs {
+		if a := ws.sigAcc[s.sig]; a != nil {
+			a.AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+			continue
+		}
+		if ms := ws.members(s.sig); len(ms) == 1 {
+			accs[ms[0]].AddRow(bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+		} else {
+			ws.dst = ws.dst[:0]
+			for _, k := range ms {
+				ws.dst = append(ws.dst, accs[k])
+			}
+			metrics.AddRowTo(ws.dst, bins[s.x0:s.x1], vals[s.x0:s.x1], weights[s.x0:s.x1])
+		}
+	}
 }
 
 // areaAt returns the total weight of the cells of a run with bins[i] >= 0
