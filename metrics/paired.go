@@ -985,38 +985,10 @@ func Compare(a, b *Evaluator, d Draws) (Comparison, error) {
 // model with no data on any training point has no training-presence
 // threshold): the caller pairs those both have.
 func CompareThresholds(a, b *Evaluator, d Draws, om [][2]int) (Comparison, error) {
-	if len(a.es) != len(b.es) {
-		return Comparison{}, errors.New("metrics: Compare: evaluators made with different settings")
+	if err := checkComparable(a, b, d, om); err != nil {
+		return Comparison{}, err
 	}
-	for _, p := range om {
-		if p[0] < 0 || p[0] >= len(a.cut) || p[1] < 0 || p[1] >= len(b.cut) {
-			return Comparison{}, fmt.Errorf("metrics: Compare: threshold pair %v outside the evaluators' %d and %d thresholds", p, len(a.cut), len(b.cut))
-		}
-	}
-	for _, id := range a.ids {
-		if id < 0 || id >= d.N {
-			return Comparison{}, fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
-		}
-	}
-	for _, id := range b.ids {
-		if id < 0 || id >= d.N {
-			return Comparison{}, fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
-		}
-	}
-	// Common presences by merging the sorted ids.
-	var pa, pb []int
-	for i, j := 0, 0; i < len(a.ids) && j < len(b.ids); {
-		switch {
-		case a.ids[i] < b.ids[j]:
-			i++
-		case a.ids[i] > b.ids[j]:
-			j++
-		default:
-			pa, pb = append(pa, i), append(pb, j)
-			i++
-			j++
-		}
-	}
+	pa, pb := commonPresences(a, b)
 	cmp := Comparison{Common: len(pa)}
 	va, vb := make([]float64, len(pa)), make([]float64, len(pa))
 	ua, ub := make([]float64, len(pa)), make([]float64, len(pa))
@@ -1066,51 +1038,103 @@ func CompareThresholds(a, b *Evaluator, d Draws, om [][2]int) (Comparison, error
 	}
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 	if len(pa) > 0 {
-		// A side whose presences are all common scores the resamples of its
-		// own memo (the same numbers, computed once per evaluator and
-		// shared by all its comparisons). The other side is scored on the
-		// counts of the common presences: ga and gb are their groups.
-		var ma, mb *ownMemo
-		if len(pa) == len(a.ids) && useOwnMemo {
-			ma = a.ownResamples(d)
-		}
-		if len(pb) == len(b.ids) && useOwnMemo {
-			mb = b.ownResamples(d)
-		}
-		// The other side's scores come from its presences in common:
-		// their group sets, and the counts and sums per kept group.
-		var rs *resampler
-		var gsa, gsb *groupSet
-		var groupsA, beforeA, groupsB, beforeB []int
-		if ma == nil {
-			gsa = a.groupSet(pa)
-			groupsA, beforeA = make([]int, len(gsa.p.xge)), make([]int, len(gsa.p.xge)+1)
-		}
-		if mb == nil {
-			gsb = b.groupSet(pb)
-			groupsB, beforeB = make([]int, len(gsb.p.xge)), make([]int, len(gsb.p.xge)+1)
-		}
-		if ma == nil || mb == nil {
-			rs = newResampler(d)
-		}
-		var ra, rb Values
-		var sa, sb evalScratch
-		for r := 0; r < d.B; r++ {
-			if ma != nil {
-				ma.load(r, nE, len(a.cut), &ra)
-			} else {
-				a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa)
-			}
-			if mb != nil {
-				mb.load(r, nE, len(b.cut), &rb)
-			} else {
-				b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
-			}
-			appendResampleDiffs(diffs, &ra, &rb, om)
-		}
+		resampleDiffs(a, b, d, om, pa, pb, diffs)
 	}
 	finishResampled(&cmp, diffs, d.B)
 	return cmp, nil
+}
+
+// checkComparable reports whether a and b can be compared: made with the
+// same E values, thresholds pairs om inside both lists of thresholds, and
+// every presence's global index inside the draws' n.
+func checkComparable(a, b *Evaluator, d Draws, om [][2]int) error {
+	if len(a.es) != len(b.es) {
+		return errors.New("metrics: Compare: evaluators made with different settings")
+	}
+	for _, p := range om {
+		if p[0] < 0 || p[0] >= len(a.cut) || p[1] < 0 || p[1] >= len(b.cut) {
+			return fmt.Errorf("metrics: Compare: threshold pair %v outside the evaluators' %d and %d thresholds", p, len(a.cut), len(b.cut))
+		}
+	}
+	for _, id := range a.ids {
+		if id < 0 || id >= d.N {
+			return fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
+		}
+	}
+	for _, id := range b.ids {
+		if id < 0 || id >= d.N {
+			return fmt.Errorf("metrics: Compare: global index %d outside 0..%d", id, d.N-1)
+		}
+	}
+	return nil
+}
+
+// commonPresences returns the positions in a and in b of the presences
+// both hold, in order of their global index (the ids of each are sorted).
+func commonPresences(a, b *Evaluator) (pa, pb []int) {
+	for i, j := 0, 0; i < len(a.ids) && j < len(b.ids); {
+		switch {
+		case a.ids[i] < b.ids[j]:
+			i++
+		case a.ids[i] > b.ids[j]:
+			j++
+		default:
+			pa, pb = append(pa, i), append(pb, j)
+			i++
+			j++
+		}
+	}
+	return pa, pb
+}
+
+// resampleDiffs appends to diffs (see appendResampleDiffs) the paired
+// differences a - b of each of the draws' resamples of the presences both
+// hold (positions pa in a, pb in b), each side scored on its resampled
+// counts.
+func resampleDiffs(a, b *Evaluator, d Draws, om [][2]int, pa, pb []int, diffs [][]float64) {
+	nE := len(a.es)
+	// A side whose presences are all common scores the resamples of its
+	// own memo (the same numbers, computed once per evaluator and
+	// shared by all its comparisons). The other side is scored on the
+	// counts of the common presences: ga and gb are their groups.
+	var ma, mb *ownMemo
+	if len(pa) == len(a.ids) && useOwnMemo {
+		ma = a.ownResamples(d)
+	}
+	if len(pb) == len(b.ids) && useOwnMemo {
+		mb = b.ownResamples(d)
+	}
+	// The other side's scores come from its presences in common:
+	// their group sets, and the counts and sums per kept group.
+	var rs *resampler
+	var gsa, gsb *groupSet
+	var groupsA, beforeA, groupsB, beforeB []int
+	if ma == nil {
+		gsa = a.groupSet(pa)
+		groupsA, beforeA = make([]int, len(gsa.p.xge)), make([]int, len(gsa.p.xge)+1)
+	}
+	if mb == nil {
+		gsb = b.groupSet(pb)
+		groupsB, beforeB = make([]int, len(gsb.p.xge)), make([]int, len(gsb.p.xge)+1)
+	}
+	if ma == nil || mb == nil {
+		rs = newResampler(d)
+	}
+	var ra, rb Values
+	var sa, sb evalScratch
+	for r := 0; r < d.B; r++ {
+		if ma != nil {
+			ma.load(r, nE, len(a.cut), &ra)
+		} else {
+			a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa)
+		}
+		if mb != nil {
+			mb.load(r, nE, len(b.cut), &rb)
+		} else {
+			b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb)
+		}
+		appendResampleDiffs(diffs, &ra, &rb, om)
+	}
 }
 
 // appendResampleDiffs appends one resample's paired differences a - b to
