@@ -379,6 +379,21 @@ func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 	for k, j := range sIdx {
 		e.group[k] = sort.Search(len(e.p.j), func(g int) bool { return e.p.j[g] <= j })
 	}
+	e.setThresholds(thIdx)
+	e.setWindows(a, c, s, parts)
+	all := make([]int, n)
+	for k := range all {
+		all[k] = k
+	}
+	e.all = e.groupSet(all)
+	e.setBoyceRanks()
+	return e, nil
+}
+
+// setThresholds records the thresholds' layout indices and, for each,
+// the number of presence groups at or above it (cut: the groups' layout
+// indices descend).
+func (e *Evaluator) setThresholds(thIdx []int) {
 	e.th = thIdx
 	for _, tj := range thIdx {
 		cut := len(e.p.j)
@@ -387,6 +402,11 @@ func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.cut = append(e.cut, cut)
 	}
+}
+
+// setWindows sets the Boyce index's moving windows (Score's, or made from
+// a with the settings s) and the presence groups inside each.
+func (e *Evaluator) setWindows(a *Accumulator, c *cumulative, s Settings, parts *scored) {
 	if parts != nil {
 		e.win = parts.win
 	} else {
@@ -404,11 +424,14 @@ func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 		}
 		e.winGroups[w] = [2]int32{int32(lo), int32(g)}
 	}
-	all := make([]int, n)
-	for k := range all {
-		all[k] = k
-	}
-	e.all = e.groupSet(all)
+}
+
+// setBoyceRanks sets what each resample's Spearman correlation of the
+// Boyce index reuses: the deviations of the windows' midpoint ranks from
+// their mean and their sum of squares, each window's inverse area share,
+// and whether the correlation can be computed exactly (midpoint ranks in
+// halves, few windows).
+func (e *Evaluator) setBoyceRanks() {
 	mid := make([]float64, len(e.win))
 	for w, bw := range e.win {
 		mid[w] = bw.mid
@@ -431,7 +454,6 @@ func newEvaluator(a *Accumulator, test []float64, ids []int, thresholds []float6
 			e.exactRho = false
 		}
 	}
-	return e, nil
 }
 
 // N returns the number of test presences of the evaluator.
