@@ -42,71 +42,7 @@ func (s *Study) draws() metrics.Draws {
 // part.
 func (s *Study) paired() error {
 	s.res.Paired = []report.Paired{}
-	var ids []string
-	for _, m := range s.fam.Members {
-		ids = append(ids, m.ID)
-	}
-	scored := func(model, ext string) *report.Score {
-		for i := range s.res.Scores {
-			sc := &s.res.Scores[i]
-			if sc.Model == model && sc.Extent == ext && sc.Scored {
-				return sc
-			}
-		}
-		return nil
-	}
-	all := s.res.Models
-	var models, nullModels []report.Model
-	for _, m := range all {
-		if m.IsNull() {
-			nullModels = append(nullModels, m)
-		} else {
-			models = append(models, m)
-		}
-	}
-	var okIDs []string
-	for _, id := range ids {
-		for _, m := range all {
-			if scored(m.Name, id) != nil {
-				okIDs = append(okIDs, id)
-				break
-			}
-		}
-	}
-	base := report.BaseExtent(okIDs)
-	type job struct {
-		kind           report.PairKind
-		ma, ea, mb, eb string
-	}
-	var jobs []job
-	for _, m := range all {
-		if scored(m.Name, base) == nil {
-			continue
-		}
-		for _, id := range okIDs {
-			if id != base && scored(m.Name, id) != nil {
-				jobs = append(jobs, job{report.PairedKindExtent, m.Name, id, m.Name, base})
-			}
-		}
-	}
-	for _, id := range okIDs {
-		for i, a := range models {
-			for _, b := range models[i+1:] {
-				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
-					jobs = append(jobs, job{report.PairedKindModel, a.Name, id, b.Name, id})
-				}
-			}
-		}
-	}
-	for _, id := range okIDs {
-		for _, a := range models {
-			for _, n := range nullModels {
-				if scored(a.Name, id) != nil && scored(n.Name, id) != nil {
-					jobs = append(jobs, job{report.PairedKindNull, a.Name, id, n.Name, id})
-				}
-			}
-		}
-	}
+	jobs := s.pairJobs()
 	// Each comparison is deterministic on its own; run them on the workers
 	// and keep the results in job order.
 	out := make([][]report.Paired, len(jobs))
@@ -139,6 +75,82 @@ func (s *Study) paired() error {
 		s.res.Paired = append(s.res.Paired, out[i]...)
 	}
 	return nil
+}
+
+// pairJob is one paired comparison: model ma on extent ea minus model mb
+// on extent eb.
+type pairJob struct {
+	kind           report.PairKind
+	ma, ea, mb, eb string
+}
+
+// pairJobs lists the comparisons in the order results.json keeps them:
+// every model and null on every other extent minus itself on the base
+// extent, then on each extent every pair of models, then every model
+// minus every null; each only where both sides are scored.
+func (s *Study) pairJobs() []pairJob {
+	var ids []string
+	for _, m := range s.fam.Members {
+		ids = append(ids, m.ID)
+	}
+	scored := func(model, ext string) *report.Score {
+		for i := range s.res.Scores {
+			sc := &s.res.Scores[i]
+			if sc.Model == model && sc.Extent == ext && sc.Scored {
+				return sc
+			}
+		}
+		return nil
+	}
+	all := s.res.Models
+	var models, nullModels []report.Model
+	for _, m := range all {
+		if m.IsNull() {
+			nullModels = append(nullModels, m)
+		} else {
+			models = append(models, m)
+		}
+	}
+	var okIDs []string
+	for _, id := range ids {
+		for _, m := range all {
+			if scored(m.Name, id) != nil {
+				okIDs = append(okIDs, id)
+				break
+			}
+		}
+	}
+	base := report.BaseExtent(okIDs)
+	var jobs []pairJob
+	for _, m := range all {
+		if scored(m.Name, base) == nil {
+			continue
+		}
+		for _, id := range okIDs {
+			if id != base && scored(m.Name, id) != nil {
+				jobs = append(jobs, pairJob{report.PairedKindExtent, m.Name, id, m.Name, base})
+			}
+		}
+	}
+	for _, id := range okIDs {
+		for i, a := range models {
+			for _, b := range models[i+1:] {
+				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
+					jobs = append(jobs, pairJob{report.PairedKindModel, a.Name, id, b.Name, id})
+				}
+			}
+		}
+	}
+	for _, id := range okIDs {
+		for _, a := range models {
+			for _, n := range nullModels {
+				if scored(a.Name, id) != nil && scored(n.Name, id) != nil {
+					jobs = append(jobs, pairJob{report.PairedKindNull, a.Name, id, n.Name, id})
+				}
+			}
+		}
+	}
+	return jobs
 }
 
 // comparePair compares model ma on extent ea with model mb on extent eb on
