@@ -141,22 +141,30 @@ func TestBatchOnlyEmpty(t *testing.T) {
 	}
 }
 
+// finishedPair runs a batch of two studies, "one" and "two", on the
+// shared small study and returns its table, its --out, study two's
+// results.json and that file's content.
+func finishedPair(t *testing.T) (table, out, res string, good []byte) {
+	t.Helper()
+	table = h27Table(t, sharedStudy(t), "one,m=MODEL,OCC,REGION", "two,m=MODEL,OCC,REGION")
+	out = filepath.Join(t.TempDir(), "runs")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("first batch: exit %d: %s", code, se)
+	}
+	res = filepath.Join(out, "two", "results.json")
+	good, err := os.ReadFile(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return table, out, res, good
+}
+
 // TestBatchDamagedResults: a finished study whose results.json was edited
 // since (a field deleted) is not summarised from wrong numbers: running
 // the batch again lists it as failed (exit 1) with the file, the field
 // and what to do; once its completion marker is removed it runs again.
 func TestBatchDamagedResults(t *testing.T) {
-	s := sharedStudy(t)
-	table := h27Table(t, s, "one,m=MODEL,OCC,REGION", "two,m=MODEL,OCC,REGION")
-	out := filepath.Join(t.TempDir(), "runs")
-	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("first batch: exit %d: %s", code, se)
-	}
-	res := filepath.Join(out, "two", "results.json")
-	good, err := os.ReadFile(res)
-	if err != nil {
-		t.Fatal(err)
-	}
+	table, out, res, good := finishedPair(t)
 	os.WriteFile(res, deleteField(t, good, "scores", 0, "auc"), 0o644)
 	_, se, code := runBin(t, "batch", table, "--out", out, "--quiet")
 	marker := filepath.Join(out, "two", ".areasweep-done")

@@ -15,17 +15,7 @@ import (
 // and a marker that records the settings. An untouched study beside it
 // stays skipped.
 func TestBatchDamagedMarker(t *testing.T) {
-	s := sharedStudy(t)
-	table := h27Table(t, s, "one,m=MODEL,OCC,REGION", "two,m=MODEL,OCC,REGION")
-	out := filepath.Join(t.TempDir(), "runs")
-	if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("first batch: exit %d: %s", code, se)
-	}
-	res := filepath.Join(out, "two", "results.json")
-	good, err := os.ReadFile(res)
-	if err != nil {
-		t.Fatal(err)
-	}
+	table, out, res, good := finishedPair(t)
 	marker := filepath.Join(out, "two", ".areasweep-done")
 	for _, body := range []string{"", "garbage\n", "study\ttwo\nresults\tabc\n"} {
 		if err := os.WriteFile(marker, []byte(body), 0o644); err != nil {

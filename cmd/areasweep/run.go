@@ -262,30 +262,26 @@ func (o *RunOptions) validateNames() error {
 	// "a" would fail the run only when its outputs are written.
 	seen := map[string]string{}
 	for _, m := range o.Models {
-		name, _, err := inputs.ParseNamedPath(m)
-		if err != nil {
-			return fmt.Errorf("--model %q: %w", m, err)
-		}
-		if prev, ok := seen[strings.ToLower(name)]; ok {
-			if prev == name {
-				return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
-			}
+		name, prev, err := namedOnce("--model", m, seen)
+		switch {
+		case err != nil:
+			return err
+		case prev == name:
+			return fmt.Errorf("--model: name %q is given twice; give each model its own name", name)
+		case prev != "":
 			return fmt.Errorf("--model: names %q and %q differ only in case, which output tables do not tell apart; give each model its own name", prev, name)
 		}
-		seen[strings.ToLower(name)] = name
 	}
 	for _, m := range o.Nulls {
-		name, _, err := inputs.ParseNamedPath(m)
-		if err != nil {
-			return fmt.Errorf("--null %q: %w", m, err)
-		}
-		if prev, ok := seen[strings.ToLower(name)]; ok {
-			if prev == name {
-				return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
-			}
+		name, prev, err := namedOnce("--null", m, seen)
+		switch {
+		case err != nil:
+			return err
+		case prev == name:
+			return fmt.Errorf("--null: name %q is already used by a model or null; give each its own name", name)
+		case prev != "":
 			return fmt.Errorf("--null: name %q differs only in case from the model or null %q, which output tables do not tell apart; give each its own name", name, prev)
 		}
-		seen[strings.ToLower(name)] = name
 	}
 	if _, ok := seen[report.DistanceNullName]; ok && !o.NoDistanceNull {
 		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
@@ -295,19 +291,33 @@ func (o *RunOptions) validateNames() error {
 	// told apart in a case-insensitive table or file system.
 	extras := map[string]string{}
 	for _, m := range o.Extra {
-		name, _, err := inputs.ParseNamedPath(m)
-		if err != nil {
-			return fmt.Errorf("--extra %q: %w", m, err)
-		}
-		if prev, ok := extras[strings.ToLower(name)]; ok {
-			if prev == name {
-				return fmt.Errorf("--extra: name %q is given twice; give each extra layer its own name", name)
-			}
+		name, prev, err := namedOnce("--extra", m, extras)
+		switch {
+		case err != nil:
+			return err
+		case prev == name:
+			return fmt.Errorf("--extra: name %q is given twice; give each extra layer its own name", name)
+		case prev != "":
 			return fmt.Errorf("--extra: names %q and %q differ only in case, which output tables do not tell apart; give each extra layer its own name", prev, name)
 		}
-		extras[strings.ToLower(name)] = name
 	}
 	return nil
+}
+
+// namedOnce parses the NAME=PATH value v of flag and records its name in
+// seen (keyed by the name in lower case): prev is the name seen before
+// that equals it ignoring case, "" when there is none.
+func namedOnce(flag, v string, seen map[string]string) (name, prev string, err error) {
+	name, _, err = inputs.ParseNamedPath(v)
+	if err != nil {
+		return "", "", fmt.Errorf("%s %q: %w", flag, v, err)
+	}
+	key := strings.ToLower(name)
+	prev = seen[key]
+	if prev == "" {
+		seen[key] = name
+	}
+	return name, prev, nil
 }
 
 // validateInputs checks that the inputs every run needs are named.
