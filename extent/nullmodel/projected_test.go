@@ -80,7 +80,10 @@ func polarGrid(x0, y0, cell, lon0 float64) Centres {
 // bracketed (not exact), or the path is not tested; and on the grids of 2
 // km cells most centres must be interpolated (Centres asked for at most
 // maxAsked of the cells, in blocks of 240), or interpolation is not
-// tested. The same holds with every centre from Centres (exactCentres).
+// tested. minBracketed and maxAsked are our own cut-offs, set with room
+// from the design's about 8 lattice points in 256 cells so that they fail
+// when the cells are computed exactly or their centres come from PROJ.
+// The same holds with every centre from Centres (exactCentres).
 func TestBracketProjected(t *testing.T) {
 	cases := []struct {
 		name           string

@@ -548,7 +548,11 @@ func FuzzParseStudy(f *testing.F) {
 // TestParseWhole: a whole-number flag takes what the study file takes for
 // the same key (Go integer literals, and whole numbers in decimal or
 // exponent form, YAML's float forms); anything else keeps
-// strconv.ParseInt's error, which the command words for the user.
+// strconv.ParseInt's error, which the command words for the user. The
+// expected values are the literals' own values under Go's number syntax
+// (the Go specification's integer and floating-point literals) and our
+// bound of 2^53, the largest range where a float64 holds every whole
+// number (IEEE 754 binary64, 53-bit significand).
 func TestParseWhole(t *testing.T) {
 	cases := []struct {
 		in   string

@@ -474,7 +474,8 @@ func mustLayout(b *testing.B, lo, hi float64) *metrics.Layout {
 // the field DistanceNull makes: NewPoints with CellCentres and
 // CellPoints) against those distances. On the grids of fine cells most
 // centres must be interpolated: the bounds ask PROJ for at most maxAsked
-// of the cells in blocks of 64.
+// of the cells in blocks of 64 (our own cut-off, with room from the
+// design's about 8 lattice points in 256 cells).
 func TestVirtualProjectedMatchesNearest(t *testing.T) {
 	cases := []struct {
 		name string
