@@ -179,9 +179,9 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 	case damaged == failed:
 		again = "each line says what to do"
 	case stale == failed:
-		again = "--force runs them again (they were made from other settings or inputs)"
+		again = "--force runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
 	case stale > 0 || damaged > 0:
-		again = "running the same command again retries them, but not those made from other settings or inputs (--force) or with a damaged results.json or an input that cannot be read (see their lines)"
+		again = "running the same command again retries them, but not those made from other settings or inputs or with a damaged completion marker (--force), or with a damaged results.json or an input that cannot be read (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).

@@ -181,7 +181,7 @@ func waited(o *Options, w io.Writer, studies []*study, logs string, staleIDs, un
 	case len(notDone) > 0 || len(unreadableIDs) > 0:
 		also := ""
 		if len(staleIDs) > 0 {
-			also = fmt.Sprintf(" (and add --force for %s, made from other settings or inputs)", strings.Join(staleIDs, ", "))
+			also = fmt.Sprintf(" (and add --force for %s, made from other settings or inputs or with a damaged completion marker)", strings.Join(staleIDs, ", "))
 		}
 		if len(unreadableIDs) > 0 {
 			also += fmt.Sprintf("; not submitted, each with an input file that cannot be read (named above): %s; make the files readable first",
@@ -193,7 +193,7 @@ func waited(o *Options, w io.Writer, studies []*study, logs string, staleIDs, un
 		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
 			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), logs, also)
 	case len(staleIDs) > 0:
-		return fmt.Errorf("%d of %d studies were made from other settings or inputs and not run again (%s, each named above): add --force to run them again",
+		return fmt.Errorf("%d of %d studies were made from other settings or inputs (or their completion marker is damaged) and not run again (%s, each named above): add --force to run them again",
 			len(staleIDs), len(studies), strings.Join(staleIDs, ", "))
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))
