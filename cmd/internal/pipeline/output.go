@@ -68,6 +68,12 @@ func scoresCSV(r *report.Results) []byte {
 			} else {
 				row("partial_roc_ratio", e, "", p.Ratio)
 			}
+			if p.Iterations <= p.NotFormed {
+				// No resample formed a ratio: their mean, percentiles and
+				// P do not exist (results.json holds 0 there, with
+				// iterations_not_formed; a P of 0 would read as "< 1/B").
+				continue
+			}
 			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
 			row("partial_roc_resample_p2_5", e, "", p.CILow)
 			row("partial_roc_resample_p97_5", e, "", p.CIHigh)

@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"math"
 	"strconv"
+	"strings"
 	"testing"
 
 	"areasweep/report"
@@ -52,7 +53,13 @@ func TestScoresCSV(t *testing.T) {
 		if !sc.Scored {
 			continue
 		}
-		rows += 6 + 5*len(sc.PartialROC) + 5*len(sc.Thresholds)
+		rows += 6 + 5*len(sc.Thresholds)
+		for _, pr := range sc.PartialROC {
+			rows++ // the ratio, or partial_roc_undefined
+			if pr.Iterations > pr.NotFormed {
+				rows += 4 // the resamples' mean, percentiles and P
+			}
+		}
 		if sc.Boyce != nil {
 			rows++
 		}
@@ -76,5 +83,57 @@ func TestScoresCSV(t *testing.T) {
 	}
 	if len(recs)-1 != rows {
 		t.Errorf("%d rows, want %d", len(recs)-1, rows)
+	}
+}
+
+// TestScoresCSVUnformedResamples checks the partial ROC rows of
+// scores.csv against the resamples formed: when none of the published
+// bootstrap's resamples formed a ratio (the demo's coarse model, whose
+// 1 - E crossing falls among tied test points in every resample), the
+// resamples' mean, percentiles and P do not exist, and the table leaves
+// their rows out rather than write 0 (a P of 0 reads as "< 1/B"); with at
+// least one formed resample the four rows are written. The values are the
+// fields' own, copied.
+func TestScoresCSVUnformedResamples(t *testing.T) {
+	for _, c := range []struct {
+		name      string
+		pr        report.PartialROC
+		wantRows  []string
+		wantValue map[string]float64
+	}{
+		{"undefined, none formed", report.PartialROC{E: 0.05, Iterations: 500, NotFormed: 500},
+			[]string{"partial_roc_undefined"}, map[string]float64{"partial_roc_undefined": 1}},
+		{"undefined, some formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 499},
+			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean", "partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"},
+			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2, "partial_roc_resample_p2_5": 1.1, "partial_roc_resample_p97_5": 1.4, "partial_roc_p_value": 0.02}},
+		{"defined, all formed, P 0", report.PartialROC{E: 0.05, Defined: true, Ratio: 1.3, RatioMean: 1.25, CILow: 1.1, CIHigh: 1.5, PValue: 0, Iterations: 500},
+			[]string{"partial_roc_ratio", "partial_roc_ratio_resample_mean", "partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"},
+			map[string]float64{"partial_roc_ratio": 1.3, "partial_roc_ratio_resample_mean": 1.25, "partial_roc_resample_p2_5": 1.1, "partial_roc_resample_p97_5": 1.5, "partial_roc_p_value": 0}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			r := &report.Results{
+				Models:  []report.Model{{Name: "m", Role: report.RoleModel}},
+				Extents: []report.Extent{{ID: "base", Kind: "base", AreaKm2: 100}},
+				Scores:  []report.Score{{Model: "m", Extent: "base", Scored: true, TestPoints: 20, PartialROC: []report.PartialROC{c.pr}}},
+			}
+			recs, err := csv.NewReader(bytes.NewReader(scoresCSV(r))).ReadAll()
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got []string
+			for _, rec := range recs[1:] {
+				if rec[6] == "" {
+					continue // not a partial ROC row
+				}
+				got = append(got, rec[5])
+				v, err := strconv.ParseFloat(rec[8], 64)
+				if err != nil || v != c.wantValue[rec[5]] {
+					t.Errorf("%s: value %q, want %v", rec[5], rec[8], c.wantValue[rec[5]])
+				}
+			}
+			if strings.Join(got, ",") != strings.Join(c.wantRows, ",") {
+				t.Errorf("partial ROC rows %v, want %v", got, c.wantRows)
+			}
+		})
 	}
 }
