@@ -27,7 +27,10 @@
 // Index answers nearest-site queries exactly in geodesic distance: a kd-tree
 // on rectifying-latitude unit vectors proposes candidates, two rigorous lower
 // bounds on the geodesic distance (see Index) discard sites that cannot be
-// nearest, and Inverse decides among the rest.
+// nearest, and Inverse decides among the rest. ChordUpper bounds a
+// geodesic from above by the straight (ECEF) distance between its ends
+// (Schur's comparison theorem, see sectionUpper), for callers that need a
+// safe step without solving the inverse problem.
 //
 // Angles are in degrees, lengths in metres and areas in square metres.
 package geodesy
