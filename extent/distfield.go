@@ -658,9 +658,9 @@ type bandPoints struct {
 // positions (under 0.1 mm above the geodesic for cells up to 10 km wide),
 // which costs two sines and cosines per cell where the geodesic itself
 // costs an inverse problem. A step overstated only shortens the room a
-// cell passes on; one understated would overstate it. walkTile asks for the steps
-// of a row from left to right, so the left cell's position is usually
-// the one the previous call made.
+// cell passes on; one understated would overstate it. walkTile asks for
+// the steps of a row from left to right, so the left cell's position is
+// usually the one the previous call made.
 func (p *bandPoints) stepUpper(k, c int) float64 {
 	if !p.stepOK || p.stepK != k || p.stepC != c-1 {
 		p.stepP = geodesy.ECEF(p.lats[k][c-1], p.lons[k][c-1])
