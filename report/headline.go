@@ -86,7 +86,7 @@ func verdictPhrase(mv *ModelVerdict) string {
 	}
 	few := ""
 	if d.Position == positionTooFew {
-		few = fmt.Sprintf(", on %d common test points: not judged", d.CommonPoints)
+		few = fmt.Sprintf(", on %d common test point%s: not judged", d.CommonPoints, plural(d.CommonPoints))
 	}
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
 		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
@@ -104,7 +104,7 @@ func rankingClause(rk ModelRanking) string {
 	}
 	n := rk.Extents
 	if rk.identical() {
-		return fmt.Sprintf("%s and %s score the same on all %d extent%s", rk.Model, rk.Other, n, plural(n))
+		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
 		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, plural(n))
@@ -150,7 +150,7 @@ func testPointText(s *Sensitivity) string {
 		lo, hi = min(lo, n), max(hi, n)
 	}
 	if !s.TestPointsVary {
-		return fmt.Sprintf("%d test points on each", lo)
+		return fmt.Sprintf("%d test point%s on each", lo, plural(lo))
 	}
 	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
 }

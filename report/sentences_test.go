@@ -1736,3 +1736,54 @@ func TestOneExtentBesideUnscoredBase(t *testing.T) {
 	}
 	checkWords(t, "sentence", mv.Sentence, []string{"scored on the reference extent region_b50 only, so there is nothing to compare"}, []string{"the base extent"})
 }
+
+// TestOneTestPointSingular: counts of 1 test point (a study whose test
+// records all fall in one cell is thinned to one) are said in the
+// singular, and one distance is not given as a range with a median
+// ("The 1 test points lie 22.7–22.7 km ... (median 22.7 km)" was written).
+// Expected strings are the templates with the count filled in by hand.
+func TestOneTestPointSingular(t *testing.T) {
+	s := &Sensitivity{TestPoints: []int{1, 1, 1}}
+	checkWords(t, "test point text", testPointText(s), []string{"1 test point on each"}, []string{"points"})
+	checkWords(t, "chain clause", fewPointsClause(1), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
+	mv := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", Tolerance: 0.05, Largest: 0,
+		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: 0.004, High: 0.004, Position: positionTooFew}}}
+	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"on 1 common test point: not judged"}, []string{"points"})
+	checkWords(t, "all extents", allExtents(1), []string{"the 1 extent"}, []string{"all"})
+	checkWords(t, "all extents", allExtents(13), []string{"all 13 extents"}, nil)
+
+	// One scored test point 22.7 km from the nearest training point.
+	r := loadSample(t)
+	k := 0
+	for i := range r.Points {
+		p := &r.Points[i]
+		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
+			continue
+		}
+		if k > 0 {
+			p.Status = vocab.PointThinned
+		}
+		p.NearestTrainKm = 22.7
+		k++
+	}
+	ind := analyzed(t, r).Independence
+	checkWords(t, "independence", ind.Sentence, []string{"The 1 test point lies 22.7 km from the nearest training point; 0% lie within 3 cell widths"},
+		[]string{"points lie", "22.7–22.7", "median"})
+
+	// The reading against a null on 1 common test point.
+	r = withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Model == "good" || p.OtherModel == "good" {
+			p.CommonPoints = 1
+		}
+	}
+	s = analyzed(t, r)
+	for _, an := range s.AboveNull {
+		if an.Model == "good" && an.Metric == "auc" {
+			checkWords(t, "above null", an.Sentence, []string{"on 1 common test point, fewer than the 10"}, []string{"1 common test points"})
+		}
+	}
+	checkWords(t, "headline", s.Headline, []string{"on 1 test point, fewer than our 10"}, []string{"1 test points", "1 common test points"})
+	checkWords(t, "reply", reviewerNullText(s), []string{"good (1 common test record)"}, []string{"1 common test records"})
+}
