@@ -72,7 +72,11 @@ func (c cell) DataV() string { return strconv.FormatFloat(c.num, 'g', 17, 64) }
 func tc(s string) cell { return cell{text: s} }
 
 func nc(v float64, dec int) cell {
-	return cell{text: strconv.FormatFloat(v, 'f', dec, 64), num: v, isN: true, cls: "n"}
+	s := strconv.FormatFloat(v, 'f', dec, 64)
+	if strings.Trim(s, "-0.") == "" {
+		s = strings.TrimPrefix(s, "-") // no negative zero, as f3 and f4
+	}
+	return cell{text: s, num: v, isN: true, cls: "n"}
 }
 
 func ic(v int) cell { return cell{text: strconv.Itoa(v), num: float64(v), isN: true, cls: "n"} }

@@ -1830,3 +1830,28 @@ func TestMapCaptionAnchorsDrawn(t *testing.T) {
 		checkWords(t, c.name, mapCaption(r, "good", gs, gs, mapMarks{}, 0), []string{c.want}, c.notWant)
 	}
 }
+
+// TestTableCellNoNegativeZero: a table cell rounds a tiny negative number
+// to 0 without a sign, as f3 and f4 do in sentences ("-0.0000" was shown
+// for a test-set shift of -1e-6 and for a difference of -3e-5).
+func TestTableCellNoNegativeZero(t *testing.T) {
+	cases := []struct {
+		v    float64
+		dec  int
+		want string
+	}{
+		{-1e-6, 4, "0.0000"},
+		{-3e-5, 3, "0.000"},
+		{math.Copysign(0, -1), 2, "0.00"},
+		{-0.00005, 4, "-0.0001"}, // rounds away from 0: keeps its sign
+		{-0.0004, 3, "0.000"},
+		{-0.0123, 3, "-0.012"},
+		{0.5, 0, "0"},
+		{-0.4, 0, "0"},
+	}
+	for _, c := range cases {
+		if got := nc(c.v, c.dec); got.text != c.want || got.num != c.v {
+			t.Errorf("nc(%v, %d) = %q (%v), want %q", c.v, c.dec, got.text, got.num, c.want)
+		}
+	}
+}
