@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"areasweep/extent/vocab"
@@ -155,6 +156,28 @@ func testPointText(s *Sensitivity) string {
 	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
 }
 
+// scoredNowhere lists the models scored on none of the scored extents
+// (a constant model, for one): they have no verdict to give, only
+// "undetermined" for want of any score.
+func (s *Sensitivity) scoredNowhere() []string {
+	if len(s.ScoredExtents) == 0 {
+		return nil
+	}
+	n := map[string]int{}
+	for _, u := range s.Unscored {
+		if slices.Contains(s.ScoredExtents, u.Extent) {
+			n[u.Model]++
+		}
+	}
+	var out []string
+	for _, m := range s.ModelNames {
+		if n[m] == len(s.ScoredExtents) {
+			out = append(out, m)
+		}
+	}
+	return out
+}
+
 // headline writes the two or three summary sentences: the verdicts only,
 // never the sums-of-squares split (a property of the chosen family).
 func headline(a *analysis, s *Sensitivity) string {
@@ -214,10 +237,17 @@ func headline(a *analysis, s *Sensitivity) string {
 			// say so here, where a reader may stop.
 			fmt.Fprintf(&b, " Differences are taken from %s.", referenceText(s, "%s"))
 		}
+		nowhere := s.scoredNowhere()
+		if len(nowhere) > 0 {
+			fmt.Fprintf(&b, " Model%s %s %s not scored on any extent (Scores table).", plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
+		}
 		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
 			key := MetricKeyPartialROC(a.r.Settings.E[0])
 			var mvs []ModelVerdict
 			for _, m := range a.models {
+				if slices.Contains(nowhere, m) {
+					continue
+				}
 				if mv := s.findModelVerdict(key, m); mv != nil {
 					mvs = append(mvs, *mv)
 				}

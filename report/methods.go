@@ -629,7 +629,11 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	if len(undetermined) > 0 {
 		// Undetermined: an interval straddles the tolerance, or a score
 		// is undefined or has too few common test records somewhere.
-		fmt.Fprintf(b, "For %s the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent). ", joinList(undetermined))
+		why := "an interval straddles the tolerance, or the score is undefined or not judged on some extent"
+		if nowhere := s.scoredNowhere(); len(nowhere) > 0 {
+			why += fmt.Sprintf(", or, for %s, no extent is scored", joinList(nowhere))
+		}
+		fmt.Fprintf(b, "For %s the test records cannot tell (%s). ", joinList(undetermined), why)
 	}
 }
 

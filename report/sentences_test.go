@@ -1855,3 +1855,42 @@ func TestTableCellNoNegativeZero(t *testing.T) {
 		}
 	}
 }
+
+// TestModelScoredNowhere: a model scored on no extent (a constant raster)
+// was left out of the headline's AUC clause yet named in its partial ROC
+// clause as "undetermined", as if scored, and the reply blamed the test
+// records' intervals for metrics undetermined only by it. The headline
+// now says it is not scored, and the reply gives that reason.
+func TestModelScoredNowhere(t *testing.T) {
+	r := loadSample(t)
+	var sc []Score
+	for _, s := range r.Scores {
+		if s.Model == "truncated" {
+			s.Scored = false
+		}
+		sc = append(sc, s)
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if p.Model != "truncated" && p.OtherModel != "truncated" {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	s := analyzed(t, r)
+	if got := s.scoredNowhere(); !slices.Equal(got, []string{"truncated"}) {
+		t.Fatalf("scored nowhere: %v", got)
+	}
+	checkWords(t, "headline", s.Headline, []string{"Model truncated is not scored on any extent (Scores table)."},
+		[]string{"for truncated", "and truncated", "truncated and", ", truncated"})
+	var b strings.Builder
+	reviewerVerdicts(&b, s)
+	checkWords(t, "reply", b.String(), []string{"the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent, or, for truncated, no extent is scored)."}, nil)
+	// The sample as it is: every model scored somewhere.
+	s = analyzed(t, loadSample(t))
+	if got := s.scoredNowhere(); len(got) != 0 {
+		t.Errorf("scored nowhere on the sample: %v", got)
+	}
+	checkWords(t, "headline", s.Headline, nil, []string{"not scored on any extent"})
+}
