@@ -1894,3 +1894,29 @@ func TestModelScoredNowhere(t *testing.T) {
 	}
 	checkWords(t, "headline", s.Headline, nil, []string{"not scored on any extent"})
 }
+
+// TestDecompositionUndefinedNotUnscored: with every model scored on every
+// extent and the partial ROC ratio of one undefined everywhere (its 1 − E
+// crossing among tied test points, as the demo's coarse model), the
+// models × extents table is empty because the score is undefined, not
+// because an extent is unscored; the sentence said "no extent is scored
+// for every model".
+func TestDecompositionUndefinedNotUnscored(t *testing.T) {
+	r := loadSample(t)
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	for i := range r.Scores {
+		if r.Scores[i].Model != "truncated" {
+			continue
+		}
+		for j := range r.Scores[i].PartialROC {
+			r.Scores[i].PartialROC[j].Defined = false
+		}
+	}
+	s := analyzed(t, r)
+	d := s.findDecomposition(key)
+	if d == nil {
+		t.Fatal("no decomposition of " + key)
+	}
+	checkWords(t, "decomposition", d.Sentence+" "+d.Note, []string{"no extent has it defined for every model, so models cannot be compared.", "no extent has the score defined for every model"},
+		[]string{"scored"})
+}

@@ -89,6 +89,12 @@
 #     (both on the test points of hull_100km)", which differs from hull's
 #     own 0.762) and drops a clause repeated for every chain; sentences
 #     under sensitivity only, every number and scores.csv unchanged);
+#   - rewritten on branch hC (the decomposition of a score undefined for
+#     one model on every extent said "no extent is scored for every
+#     model", untrue when every extent is scored: the demo's partial ROC
+#     ratios, undefined for coarse, now say "no extent has it defined for
+#     every model"; sentences and notes under sensitivity only, every
+#     number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
