@@ -313,7 +313,7 @@ func baseNote(r *Results) string {
 	if e.Kind == vocab.KindBase {
 		kind = "the study region as given, "
 	}
-	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test points", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test)
+	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test point%s", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test, plural(r.PointCounts.Test))
 	if len(s.ScoredExtents) == 1 {
 		return fmt.Sprintf("The one scored extent is %s (%s).", e.ID, what)
 	}

@@ -1786,6 +1786,15 @@ func TestOneTestPointSingular(t *testing.T) {
 	}
 	checkWords(t, "headline", s.Headline, []string{"on 1 test point, fewer than our 10"}, []string{"1 test points", "1 common test points"})
 	checkWords(t, "reply", reviewerNullText(s), []string{"good (1 common test record)"}, []string{"1 common test records"})
+
+	// The base extent's note, in a run of one test point.
+	r = loadSample(t)
+	r.PointCounts.Test = 1
+	for i := range r.Extents {
+		r.Extents[i].TestPoints = min(r.Extents[i].TestPoints, 1)
+	}
+	analyzed(t, r)
+	checkWords(t, "base note", baseNote(r), []string{"1 of the 1 test point)"}, []string{"test points)"})
 }
 
 // TestMapCaptionAnchorsDrawn: the map caption names the outlines of the
