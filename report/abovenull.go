@@ -187,8 +187,8 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s against %s).", an.BaseExtent, score, an.Model, null,
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test points, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, MinPairedPoints)
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, plural(g.CommonPoints), MinPairedPoints)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
@@ -325,8 +325,8 @@ func aboveNullHeadline(s *Sensitivity) string {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
 		if an.BaseReading == ReadingTooFew {
-			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test points, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.CommonPoints, MinPairedPoints)
+			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
+				signed3(g.Diff), g.CommonPoints, plural(g.CommonPoints), MinPairedPoints)
 		}
 		switch {
 		case an.Defined >= 2 && an.allZero():

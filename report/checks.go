@@ -180,8 +180,13 @@ func (a *analysis) independence() Independence {
 	}
 	ind.NearShare = float64(ind.NearCount) / float64(len(d))
 	ind.Warn = ind.NearKm > 0 && ind.NearShare > NearShareWarn
-	ind.Sentence = fmt.Sprintf("The %d test points lie %s–%s km from the nearest training point (median %s km); %s lie within %g cell widths (%s km%s) of one",
-		len(d), trimFloat(ind.Min, 3), trimFloat(ind.Max, 3), trimFloat(ind.Median, 3), pctVs(ind.NearShare, NearShareWarn), NearCells, trimFloat(ind.NearKm, 3), how)
+	spread := fmt.Sprintf("The %d test points lie %s–%s km from the nearest training point (median %s km)", len(d), trimFloat(ind.Min, 3), trimFloat(ind.Max, 3), trimFloat(ind.Median, 3))
+	if len(d) == 1 {
+		// One distance: no range or median to give.
+		spread = fmt.Sprintf("The 1 test point lies %s km from the nearest training point", trimFloat(ind.Min, 3))
+	}
+	ind.Sentence = fmt.Sprintf("%s; %s lie within %g cell widths (%s km%s) of one",
+		spread, pctVs(ind.NearShare, NearShareWarn), NearCells, trimFloat(ind.NearKm, 3), how)
 	switch {
 	case ind.Warn:
 		// Whether the split was random, and how autocorrelated the

@@ -13,15 +13,18 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		Values: [][]float64{}, Rankings: []ExtentRanking{}, DiffersFromBase: []string{}}
 	cols := a.table(m, &d)
 	I, J := len(a.models), len(d.Extents)
+	// An extent enters the table when m is defined there for every model:
+	// every model may be scored on every extent and m still undefined for
+	// one (a partial ROC ratio whose crossing falls among tied test points).
 	if J == 0 {
-		d.Note = "no extent is scored for every model"
-		d.Sentence = fmt.Sprintf("%s: no extent is scored for every model, so models cannot be compared.", upperFirst(m.Label))
+		d.Note = "no extent has the score defined for every model"
+		d.Sentence = fmt.Sprintf("%s: no extent has it defined for every model, so models cannot be compared.", upperFirst(m.Label))
 		return d
 	}
 	d.rank(cols, a.models, m.HigherIsBetter)
 	if J < 2 || I < 2 {
-		d.Note = "fewer than two extents scored for every model"
-		d.Sentence = fmt.Sprintf("%s: only %d extent is scored for every model, too few to split extent from model effects.", upperFirst(m.Label), J)
+		d.Note = "fewer than two extents with the score defined for every model"
+		d.Sentence = fmt.Sprintf("%s: only %d extent has it defined for every model, too few to split extent from model effects.", upperFirst(m.Label), J)
 		if I < 2 {
 			d.Sentence = fmt.Sprintf("%s: only one model, so extent and model effects cannot be split.", upperFirst(m.Label))
 		}

@@ -927,13 +927,32 @@ func mapFigure(r *Results) (figure, bool) {
 func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int) string {
 	pv := r.Preview
 	south, north := pv.Bounds[1], pv.Bounds[3]
+	// Name only the anchors a panel draws: the whole raster is not drawn
+	// when it has the cells of another extent (a duplicate), nor the base
+	// region when it is empty.
+	var base, whole bool
+	for _, g := range groups {
+		for _, i := range g.members {
+			base = base || r.Extents[i].Kind == vocab.KindBase
+			whole = whole || r.Extents[i].Kind == vocab.KindWholeRaster
+		}
+	}
+	anchors := "the base region is a solid magenta outline and the whole raster a dashed red one; "
+	switch {
+	case base && !whole:
+		anchors = "the base region is a solid magenta outline; "
+	case !base && whole:
+		anchors = "the whole raster is a dashed red outline; "
+	case !base && !whole:
+		anchors = ""
+	}
 	c := fmt.Sprintf("Extents as small multiples, one panel per nested chain (extents in no chain together). "+
-		"In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers are thin outlines coloured by their distance "+
+		"In each panel %sthe buffers are thin outlines coloured by their distance "+
 		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
-		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", maxNamed, model, model)
+		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", anchors, maxNamed, model, model)
 	thinned := 0
 	for _, g := range groups {
 		thinned += mapKeyOf(r, g).thinned

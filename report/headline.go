@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"areasweep/extent/vocab"
@@ -86,7 +87,7 @@ func verdictPhrase(mv *ModelVerdict) string {
 	}
 	few := ""
 	if d.Position == positionTooFew {
-		few = fmt.Sprintf(", on %d common test points: not judged", d.CommonPoints)
+		few = fmt.Sprintf(", on %d common test point%s: not judged", d.CommonPoints, plural(d.CommonPoints))
 	}
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
 		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
@@ -104,7 +105,7 @@ func rankingClause(rk ModelRanking) string {
 	}
 	n := rk.Extents
 	if rk.identical() {
-		return fmt.Sprintf("%s and %s score the same on all %d extent%s", rk.Model, rk.Other, n, plural(n))
+		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
 		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, plural(n))
@@ -150,9 +151,31 @@ func testPointText(s *Sensitivity) string {
 		lo, hi = min(lo, n), max(hi, n)
 	}
 	if !s.TestPointsVary {
-		return fmt.Sprintf("%d test points on each", lo)
+		return fmt.Sprintf("%d test point%s on each", lo, plural(lo))
 	}
 	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
+}
+
+// scoredNowhere lists the models scored on none of the scored extents
+// (a constant model, for one): they have no verdict to give, only
+// "undetermined" for want of any score.
+func (s *Sensitivity) scoredNowhere() []string {
+	if len(s.ScoredExtents) == 0 {
+		return nil
+	}
+	n := map[string]int{}
+	for _, u := range s.Unscored {
+		if slices.Contains(s.ScoredExtents, u.Extent) {
+			n[u.Model]++
+		}
+	}
+	var out []string
+	for _, m := range s.ModelNames {
+		if n[m] == len(s.ScoredExtents) {
+			out = append(out, m)
+		}
+	}
+	return out
 }
 
 // headline writes the two or three summary sentences: the verdicts only,
@@ -214,10 +237,17 @@ func headline(a *analysis, s *Sensitivity) string {
 			// say so here, where a reader may stop.
 			fmt.Fprintf(&b, " Differences are taken from %s.", referenceText(s, "%s"))
 		}
+		nowhere := s.scoredNowhere()
+		if len(nowhere) > 0 {
+			fmt.Fprintf(&b, " Model%s %s %s not scored on any extent (Scores table).", plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
+		}
 		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
 			key := MetricKeyPartialROC(a.r.Settings.E[0])
 			var mvs []ModelVerdict
 			for _, m := range a.models {
+				if slices.Contains(nowhere, m) {
+					continue
+				}
 				if mv := s.findModelVerdict(key, m); mv != nil {
 					mvs = append(mvs, *mv)
 				}

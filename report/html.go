@@ -72,7 +72,11 @@ func (c cell) DataV() string { return strconv.FormatFloat(c.num, 'g', 17, 64) }
 func tc(s string) cell { return cell{text: s} }
 
 func nc(v float64, dec int) cell {
-	return cell{text: strconv.FormatFloat(v, 'f', dec, 64), num: v, isN: true, cls: "n"}
+	s := strconv.FormatFloat(v, 'f', dec, 64)
+	if strings.Trim(s, "-0.") == "" {
+		s = strings.TrimPrefix(s, "-") // no negative zero, as f3 and f4
+	}
+	return cell{text: s, num: v, isN: true, cls: "n"}
 }
 
 func ic(v int) cell { return cell{text: strconv.Itoa(v), num: float64(v), isN: true, cls: "n"} }
@@ -309,7 +313,7 @@ func baseNote(r *Results) string {
 	if e.Kind == vocab.KindBase {
 		kind = "the study region as given, "
 	}
-	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test points", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test)
+	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test point%s", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test, plural(r.PointCounts.Test))
 	if len(s.ScoredExtents) == 1 {
 		return fmt.Sprintf("The one scored extent is %s (%s).", e.ID, what)
 	}

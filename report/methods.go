@@ -386,6 +386,14 @@ func plural(n int) string {
 	return "s"
 }
 
+// allExtents is "all n extents", or "the 1 extent" when n is 1.
+func allExtents(n int) string {
+	if n == 1 {
+		return "the 1 extent"
+	}
+	return fmt.Sprintf("all %d extents", n)
+}
+
 // references are the methods cited in methods.md.
 // hijmans2012 is listed when the text cites it (the distance-only null and
 // the sorting bias; a null of the user's alone does not).
@@ -439,7 +447,7 @@ func resultNumbers(r *Results) string {
 	}
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.identical() {
-			out += fmt.Sprintf(" By AUC, %s and %s scored the same on all %d extent%s (every paired difference 0).", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+			out += fmt.Sprintf(" By AUC, %s and %s scored the same on %s (every paired difference 0).", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
@@ -512,7 +520,7 @@ func reviewerText(r *Results) string {
 	b.WriteString(aucAnswer(s))
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.identical() {
-			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on all %d extent%s. ", rk.Model, rk.Other, rk.Extents, plural(rk.Extents))
+			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rankingOrderText(rk))
 		}
@@ -621,7 +629,11 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	if len(undetermined) > 0 {
 		// Undetermined: an interval straddles the tolerance, or a score
 		// is undefined or has too few common test records somewhere.
-		fmt.Fprintf(b, "For %s the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent). ", joinList(undetermined))
+		why := "an interval straddles the tolerance, or the score is undefined or not judged on some extent"
+		if nowhere := s.scoredNowhere(); len(nowhere) > 0 {
+			why += fmt.Sprintf(", or, for %s, no extent is scored", joinList(nowhere))
+		}
+		fmt.Fprintf(b, "For %s the test records cannot tell (%s). ", joinList(undetermined), why)
 	}
 }
 
@@ -712,7 +724,7 @@ func reviewerNullText(s *Sensitivity) string {
 		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		switch {
 		case an.BaseReading == ReadingTooFew:
-			n.few = append(n.few, fmt.Sprintf("%s (%d common test records)", an.Model, g.CommonPoints))
+			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, plural(g.CommonPoints)))
 		case g.zero():
 			n.same = append(n.same, an.Model)
 		case an.BaseReading == ReadingAbove:

@@ -1736,3 +1736,196 @@ func TestOneExtentBesideUnscoredBase(t *testing.T) {
 	}
 	checkWords(t, "sentence", mv.Sentence, []string{"scored on the reference extent region_b50 only, so there is nothing to compare"}, []string{"the base extent"})
 }
+
+// TestOneTestPointSingular: counts of 1 test point (a study whose test
+// records all fall in one cell is thinned to one) are said in the
+// singular, and one distance is not given as a range with a median
+// ("The 1 test points lie 22.7–22.7 km ... (median 22.7 km)" was written).
+// Expected strings are the templates with the count filled in by hand.
+func TestOneTestPointSingular(t *testing.T) {
+	s := &Sensitivity{TestPoints: []int{1, 1, 1}}
+	checkWords(t, "test point text", testPointText(s), []string{"1 test point on each"}, []string{"points"})
+	checkWords(t, "chain clause", fewPointsClause(1), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
+	mv := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", Tolerance: 0.05, Largest: 0,
+		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: 0.004, High: 0.004, Position: positionTooFew}}}
+	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"on 1 common test point: not judged"}, []string{"points"})
+	checkWords(t, "all extents", allExtents(1), []string{"the 1 extent"}, []string{"all"})
+	checkWords(t, "all extents", allExtents(13), []string{"all 13 extents"}, nil)
+
+	// One scored test point 22.7 km from the nearest training point.
+	r := loadSample(t)
+	k := 0
+	for i := range r.Points {
+		p := &r.Points[i]
+		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
+			continue
+		}
+		if k > 0 {
+			p.Status = vocab.PointThinned
+		}
+		p.NearestTrainKm = 22.7
+		k++
+	}
+	ind := analyzed(t, r).Independence
+	checkWords(t, "independence", ind.Sentence, []string{"The 1 test point lies 22.7 km from the nearest training point; 0% lie within 3 cell widths"},
+		[]string{"points lie", "22.7–22.7", "median"})
+
+	// The reading against a null on 1 common test point.
+	r = withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Model == "good" || p.OtherModel == "good" {
+			p.CommonPoints = 1
+		}
+	}
+	s = analyzed(t, r)
+	for _, an := range s.AboveNull {
+		if an.Model == "good" && an.Metric == "auc" {
+			checkWords(t, "above null", an.Sentence, []string{"on 1 common test point, fewer than the 10"}, []string{"1 common test points"})
+		}
+	}
+	checkWords(t, "headline", s.Headline, []string{"on 1 test point, fewer than our 10"}, []string{"1 test points", "1 common test points"})
+	checkWords(t, "reply", reviewerNullText(s), []string{"good (1 common test record)"}, []string{"1 common test records"})
+
+	// The base extent's note, in a run of one test point.
+	r = loadSample(t)
+	r.PointCounts.Test = 1
+	for i := range r.Extents {
+		r.Extents[i].TestPoints = min(r.Extents[i].TestPoints, 1)
+	}
+	analyzed(t, r)
+	checkWords(t, "base note", baseNote(r), []string{"1 of the 1 test point)"}, []string{"test points)"})
+}
+
+// TestMapCaptionAnchorsDrawn: the map caption names the outlines of the
+// base region and of the whole raster only when a panel draws them. A
+// whole raster with the cells of another extent is a duplicate, left off
+// the maps, and the caption said "the whole raster a dashed red one"
+// under maps without it.
+func TestMapCaptionAnchorsDrawn(t *testing.T) {
+	const (
+		both      = "In each panel the base region is a solid magenta outline and the whole raster a dashed red one; the buffers"
+		baseOnly  = "In each panel the base region is a solid magenta outline; the buffers"
+		wholeOnly = "In each panel the whole raster is a dashed red outline; the buffers"
+		neither   = "In each panel the buffers"
+	)
+	cases := []struct {
+		name    string
+		drop    []vocab.Kind
+		want    string
+		notWant []string
+	}{
+		{"both drawn", nil, both, nil},
+		{"whole raster a duplicate", []vocab.Kind{vocab.KindWholeRaster}, baseOnly, []string{"whole raster"}},
+		{"base empty", []vocab.Kind{vocab.KindBase}, wholeOnly, []string{"base region"}},
+		{"neither", []vocab.Kind{vocab.KindBase, vocab.KindWholeRaster}, neither, []string{"base region", "whole raster"}},
+	}
+	for _, c := range cases {
+		r := loadSample(t)
+		for i := range r.Extents {
+			// The sample's base and whole raster, of kinds named before
+			// vocab's, as a run writes them now.
+			switch r.Extents[i].ID {
+			case "base":
+				r.Extents[i].Kind = vocab.KindBase
+			case "whole":
+				r.Extents[i].Kind = vocab.KindWholeRaster
+			}
+			if slices.Contains(c.drop, r.Extents[i].Kind) {
+				r.Extents[i].Status = vocab.StatusDuplicate
+			}
+		}
+		gs := mapGroups(r)
+		checkWords(t, c.name, mapCaption(r, "good", gs, gs, mapMarks{}, 0), []string{c.want}, c.notWant)
+	}
+}
+
+// TestTableCellNoNegativeZero: a table cell rounds a tiny negative number
+// to 0 without a sign, as f3 and f4 do in sentences ("-0.0000" was shown
+// for a test-set shift of -1e-6 and for a difference of -3e-5).
+func TestTableCellNoNegativeZero(t *testing.T) {
+	cases := []struct {
+		v    float64
+		dec  int
+		want string
+	}{
+		{-1e-6, 4, "0.0000"},
+		{-3e-5, 3, "0.000"},
+		{math.Copysign(0, -1), 2, "0.00"},
+		{-0.00005, 4, "-0.0001"}, // rounds away from 0: keeps its sign
+		{-0.0004, 3, "0.000"},
+		{-0.0123, 3, "-0.012"},
+		{0.5, 0, "0"},
+		{-0.4, 0, "0"},
+	}
+	for _, c := range cases {
+		if got := nc(c.v, c.dec); got.text != c.want || got.num != c.v {
+			t.Errorf("nc(%v, %d) = %q (%v), want %q", c.v, c.dec, got.text, got.num, c.want)
+		}
+	}
+}
+
+// TestModelScoredNowhere: a model scored on no extent (a constant raster)
+// was left out of the headline's AUC clause yet named in its partial ROC
+// clause as "undetermined", as if scored, and the reply blamed the test
+// records' intervals for metrics undetermined only by it. The headline
+// now says it is not scored, and the reply gives that reason.
+func TestModelScoredNowhere(t *testing.T) {
+	r := loadSample(t)
+	var sc []Score
+	for _, s := range r.Scores {
+		if s.Model == "truncated" {
+			s.Scored = false
+		}
+		sc = append(sc, s)
+	}
+	r.Scores = sc
+	var ps []Paired
+	for _, p := range r.Paired {
+		if p.Model != "truncated" && p.OtherModel != "truncated" {
+			ps = append(ps, p)
+		}
+	}
+	r.Paired = ps
+	s := analyzed(t, r)
+	if got := s.scoredNowhere(); !slices.Equal(got, []string{"truncated"}) {
+		t.Fatalf("scored nowhere: %v", got)
+	}
+	checkWords(t, "headline", s.Headline, []string{"Model truncated is not scored on any extent (Scores table)."},
+		[]string{"for truncated", "and truncated", "truncated and", ", truncated"})
+	var b strings.Builder
+	reviewerVerdicts(&b, s)
+	checkWords(t, "reply", b.String(), []string{"the test records cannot tell (an interval straddles the tolerance, or the score is undefined or not judged on some extent, or, for truncated, no extent is scored)."}, nil)
+	// The sample as it is: every model scored somewhere.
+	s = analyzed(t, loadSample(t))
+	if got := s.scoredNowhere(); len(got) != 0 {
+		t.Errorf("scored nowhere on the sample: %v", got)
+	}
+	checkWords(t, "headline", s.Headline, nil, []string{"not scored on any extent"})
+}
+
+// TestDecompositionUndefinedNotUnscored: with every model scored on every
+// extent and the partial ROC ratio of one undefined everywhere (its 1 − E
+// crossing among tied test points, as the demo's coarse model), the
+// models × extents table is empty because the score is undefined, not
+// because an extent is unscored; the sentence said "no extent is scored
+// for every model".
+func TestDecompositionUndefinedNotUnscored(t *testing.T) {
+	r := loadSample(t)
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	for i := range r.Scores {
+		if r.Scores[i].Model != "truncated" {
+			continue
+		}
+		for j := range r.Scores[i].PartialROC {
+			r.Scores[i].PartialROC[j].Defined = false
+		}
+	}
+	s := analyzed(t, r)
+	d := s.findDecomposition(key)
+	if d == nil {
+		t.Fatal("no decomposition of " + key)
+	}
+	checkWords(t, "decomposition", d.Sentence+" "+d.Note, []string{"no extent has it defined for every model, so models cannot be compared.", "no extent has the score defined for every model"},
+		[]string{"scored"})
+}

@@ -434,8 +434,8 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			case r.identical():
-				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on all %d extent%s compared (every paired difference, and its interval, is 0).",
-					upperFirst(m.Label), ma, mb, r.Extents, plural(r.Extents))
+				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
+					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
 				if tooFew > 0 {
 					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
 				}

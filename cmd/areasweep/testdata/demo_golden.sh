@@ -94,6 +94,12 @@
 #     a ratio, instead of writing 0 for each: 96 rows fewer, those of
 #     the demo's coarse model on 24 of its 26 extent and E pairs;
 #     results.json unchanged);
+#   - rewritten on branch hC (the decomposition of a score undefined for
+#     one model on every extent said "no extent is scored for every
+#     model", untrue when every extent is scored: the demo's partial ROC
+#     ratios, undefined for coarse, now say "no extent has it defined for
+#     every model"; sentences and notes under sensitivity only, every
+#     number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
