@@ -381,6 +381,46 @@ func TestConstantModelAndThinningSummary(t *testing.T) {
 	}
 }
 
+// TestNoThinSharedTestCellsWarned: under --no-thin, test points that share
+// a cell are counted as independent records by every interval and test, so
+// the run says so, with the counts (121 test points in one cell here:
+// 120 share it); thinned (the default) they are one point and the warning
+// is not given.
+func TestNoThinSharedTestCellsWarned(t *testing.T) {
+	s := newSmallStudy(t)
+	var occ strings.Builder
+	occ.WriteString("lon,lat,role\n13.1,42.6,train\n14.1,43.6,train\n15.1,42.6,train\n13.9,42.9,test\n")
+	for i := 0; i < 121; i++ {
+		occ.WriteString("13.5,43.0,test\n")
+	}
+	occPath := filepath.Join(s.dir, "dups.csv")
+	if err := os.WriteFile(occPath, []byte(occ.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	const want = "120 of the 122 test points scored lie in a cell with another test point (--no-thin keeps them: 2 distinct cells)"
+	for _, c := range []struct {
+		flags []string
+		warn  bool
+	}{{[]string{"--no-thin"}, true}, {nil, false}} {
+		out := filepath.Join(t.TempDir(), "res")
+		args := append([]string{"run", "--model", "m=" + s.model, "--occurrences", occPath, "--region", s.region, "--iterations", "5", "--out", out}, c.flags...)
+		_, se, code := runBin(t, args...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d: %s", c.flags, code, se)
+		}
+		if got := strings.Contains(se, want); got != c.warn {
+			t.Errorf("%v: warning given %v, want %v:\n%s", c.flags, got, c.warn, se)
+		}
+		found := false
+		for _, w := range loadResults(t, out).Warnings {
+			found = found || strings.Contains(w, want)
+		}
+		if found != c.warn {
+			t.Errorf("%v: warning in results.json %v, want %v", c.flags, found, c.warn)
+		}
+	}
+}
+
 // TestDemoStoppedCleansInputs: the demo writes its inputs inside the run's
 // staging folder, so a SIGTERM removes them with it.
 func TestDemoStoppedCleansInputs(t *testing.T) {

@@ -455,6 +455,32 @@ func (s *Study) warnDropped(pl place.Placement) {
 		s.logf("thinned: %s", listSome(pairs, 10))
 		s.warn(fmt.Sprintf("%d duplicate presence(s) in an occupied cell thinned to one per cell and role (common practice; --no-thin keeps them)", len(pairs)))
 	}
+	s.warnSharedTestCells()
+}
+
+// warnSharedTestCells warns when scored test points share cells (only
+// under --no-thin): every interval and test of the run counts each test
+// point as an independent record, and points of one cell take the same
+// value from every model and extent, so those intervals are too narrow
+// (as narrow as zero with all points in one cell).
+func (s *Study) warnSharedTestCells() {
+	seen := map[int]bool{}
+	scored, shared := 0, 0
+	for i, p := range s.points {
+		if p.Role == vocab.RoleTrain || s.cell[i] < 0 {
+			continue
+		}
+		scored++
+		if seen[s.cell[i]] {
+			shared++
+		}
+		seen[s.cell[i]] = true
+	}
+	if shared == 0 {
+		return
+	}
+	s.warn(fmt.Sprintf("%d of the %d test points scored lie in a cell with another test point (--no-thin keeps them: %d distinct cells): the bootstrap and paired intervals, the binomial tests and the cut-off of %d common test points count every point as an independent record, which points of one cell are not (each model gives them one value), so the intervals are too narrow and differences read as beyond noise too readily; for inference leave out --no-thin",
+		shared, scored, len(seen), report.MinPairedPoints))
 }
 
 // countPoints fills Results.PointCounts from the points' statuses.
