@@ -1,14 +1,49 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strings"
+	"sync"
 	"testing"
 )
+
+// walkthroughRun is the one demo run the walkthrough tests share: its
+// folder (under the test binary's temporary folder) and what it printed.
+type walkthroughRun struct {
+	once           sync.Once
+	err            error
+	dir            string
+	stdout, stderr string
+}
+
+var walkthroughShared walkthroughRun
+
+// walkthroughDemo runs `areasweep demo` once (not quiet, so that its
+// printed lines can be held to the README's) and returns that run.
+func walkthroughDemo(t *testing.T) *walkthroughRun {
+	t.Helper()
+	w := &walkthroughShared
+	w.once.Do(func() {
+		w.dir = filepath.Join(filepath.Dir(areasweepBin), "walkthrough-demo")
+		cmd := exec.Command(areasweepBin, "demo", "--out", w.dir)
+		var so, se bytes.Buffer
+		cmd.Stdout, cmd.Stderr = &so, &se
+		if err := cmd.Run(); err != nil {
+			w.err = fmt.Errorf("demo: %v\n%s", err, se.String())
+		}
+		w.stdout, w.stderr = so.String(), se.String()
+	})
+	if w.err != nil {
+		t.Fatal(w.err)
+	}
+	return w
+}
 
 // TestREADMEWalkthroughQuotes runs the demo and holds the README's
 // walkthrough to it: the quoted headline is the demo's headline, and the
@@ -26,25 +61,20 @@ func TestREADMEWalkthroughQuotes(t *testing.T) {
 		t.Fatal("README has no walkthrough section")
 	}
 	walk := text[start:end]
-	dir := t.TempDir()
-	cmd := exec.Command(areasweepBin, "demo", "--out", "demo", "--quiet")
-	cmd.Dir = dir
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("demo: %v\n%s", err, out)
-	}
+	dir := walkthroughDemo(t).dir
 	var res struct {
 		Sensitivity struct {
 			Headline string `json:"headline"`
 		} `json:"sensitivity"`
 	}
-	b, err := os.ReadFile(filepath.Join(dir, "demo", "results.json"))
+	b, err := os.ReadFile(filepath.Join(dir, "results.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	if err := json.Unmarshal(b, &res); err != nil {
 		t.Fatal(err)
 	}
-	methods, err := os.ReadFile(filepath.Join(dir, "demo", "methods.md"))
+	methods, err := os.ReadFile(filepath.Join(dir, "methods.md"))
 	if err != nil {
 		t.Fatal(err)
 	}
