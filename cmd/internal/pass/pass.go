@@ -49,6 +49,11 @@ type Raster struct {
 	// narrow: every stored value is a float32 (the band's type is Byte,
 	// Int8, UInt16, Int16 or Float32), so a kept block can be float32.
 	narrow bool
+	// signedByte: a Byte band that declares its bytes signed (a GeoTIFF
+	// with SampleFormat signed, which GDAL before 3.7 opens as Byte with
+	// PIXELTYPE=SIGNEDBYTE and reads as 0..255): decode reads 128..255 as
+	// -128..-1, as GDAL 3.7 and later read the Int8 band.
+	signedByte bool
 	// open gives each worker of a pass its own Source.
 	open func() (Source, error)
 	// keep is the budget (bytes) of blocks Sample keeps for the next
@@ -137,6 +142,7 @@ func Open(path string) (*Raster, error) {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
 		r.narrow = true
 	}
+	r.signedByte = st.DataType == godal.Byte && r.band.Metadata("PIXELTYPE", godal.Domain("IMAGE_STRUCTURE")) == "SIGNEDBYTE"
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
 }
@@ -163,12 +169,20 @@ func BandProblem(b godal.Band) string {
 	return ""
 }
 
-// decode turns stored values into model values in place: no-data, NaN and
+// decode turns stored values into model values in place: a signed Byte
+// band's bytes are read as signed (signedByte), no-data, NaN and
 // infinite values become NaN, the others are scaled and offset when the
 // band declares a scale or offset. A zero is always +0: -0 and +0 are one
 // value, and keeping both would let the order in which blocks reach a
 // worker decide which one a minimum or maximum reports.
 func (r *Raster) decode(buf []float64) {
+	if r.signedByte {
+		for i, v := range buf {
+			if v > 127 {
+				buf[i] = v - 256
+			}
+		}
+	}
 	nan := math.NaN()
 	if r.scale == 1 && r.offset == 0 {
 		nodata, has, near := r.nodata, r.hasNodata, r.near
