@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -81,6 +82,10 @@ type Grid struct {
 	// EqualArea is true for projections that preserve area, whose planar
 	// cell area is the true area.
 	EqualArea bool
+	// unitArea is, on an equal-area grid, the square metres in one square
+	// of the CRS's linear unit (1e6 for kilometres, 0.0929 for US survey
+	// feet); 0 means 1 (metres).
+	unitArea float64
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
 	// DatumShiftM is, for a latitude-longitude grid on another datum than
@@ -238,6 +243,15 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	}
 	if g.EqualArea {
 		g.AreaMethod = "planar cell area of an equal-area projection"
+		// The planar area is in the CRS's unit squared: a grid in
+		// kilometres or feet (+units=km, US survey feet) has its areas
+		// converted to square metres.
+		if s, ok := sr.AttrValue("PROJCS|UNIT", 1); ok {
+			if u, err := strconv.ParseFloat(s, 64); err == nil && u > 0 && u != 1 && !math.IsInf(u, 0) {
+				g.unitArea = u * u
+				g.AreaMethod = fmt.Sprintf("planar cell area of an equal-area projection (CRS unit %g m)", u)
+			}
+		}
 		return g, nil
 	}
 	if err := g.computeFactors(); err != nil {
@@ -603,6 +617,9 @@ func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 	}
 	planar := math.Abs(gt[1]*gt[5]) / 1e6
 	if g.EqualArea {
+		if g.unitArea != 0 {
+			planar = math.Abs(gt[1]*gt[5]) * g.unitArea / 1e6
+		}
 		for i := range dst {
 			dst[i] = planar
 		}
