@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"regexp"
 	"strconv"
 	"strings"
 	"sync"
@@ -86,6 +87,12 @@ type Grid struct {
 	// of the CRS's linear unit (1e6 for kilometres, 0.0929 for US survey
 	// feet); 0 means 1 (metres).
 	unitArea float64
+	// rowFactor holds, on an equal-area grid whose projection PROJ
+	// computes on a sphere while the CRS's latitudes are read as WGS84's
+	// (Mollweide, Eckert IV and VI, Goode, quartic authalic on the WGS84
+	// datum), the square metres of true area per square CRS unit of each
+	// row (sphereRowFactors); nil when the planar area is the true area.
+	rowFactor []float64
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
 	// DatumShiftM is, for a latitude-longitude grid on another datum than
@@ -233,8 +240,9 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		g.toLL.close()
 		return nil, notOnEarth(wkt, err)
 	}
+	lname := ""
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
-		lname := strings.ToLower(name)
+		lname = strings.ToLower(name)
 		for _, m := range equalAreaMethods {
 			if strings.Contains(lname, m) {
 				g.EqualArea = true
@@ -252,6 +260,7 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 				g.AreaMethod = fmt.Sprintf("planar cell area of an equal-area projection (CRS unit %g m)", u)
 			}
 		}
+		g.sphereRowFactors(lname)
 		return g, nil
 	}
 	if err := g.computeFactors(); err != nil {
@@ -620,6 +629,9 @@ func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 		if g.unitArea != 0 {
 			planar = math.Abs(gt[1]*gt[5]) * g.unitArea / 1e6
 		}
+		if g.rowFactor != nil {
+			planar = math.Abs(gt[1]*gt[5]) * g.rowFactor[row] / 1e6
+		}
 		for i := range dst {
 			dst[i] = planar
 		}
@@ -690,6 +702,129 @@ func factorBracket(x float64, step, n, size int) (k0, k1 int, t float64) {
 	m0, m1 := blockCentre(k0, step, size), blockCentre(k0+1, step, size)
 	return k0, k0 + 1, (x - m0) / (m1 - m0)
 }
+
+// sphereMethods are WKT1 names of equal-area projections that PROJ
+// computes on a sphere of the CRS's semi-major axis (taking the datum's
+// latitudes as the sphere's) and that are pseudo-cylindrical: a row of
+// cells spans one band of latitudes.
+var sphereMethods = []string{"mollweide", "eckert_iv", "eckert_vi", "goode_homolosine", "quartic_authalic"}
+
+// sphereRowFactors sets rowFactor on a grid in one of sphereMethods. The
+// planar area of such a grid is the area on the sphere of radius a (the
+// CRS's semi-major axis), not the true area on the WGS84 ellipsoid, whose
+// latitudes areasweep reads: on the WGS84 datum 0.67% less at the equator
+// and 0.67% more near the poles. The true area of an area element is its
+// planar area times
+//
+//	ratio(phi) = M N / a^2 = aw^2 (1 - e^2) / (a^2 (1 - e^2 sin^2 phi)^2)
+//
+// (M, N the WGS84 radii of curvature, aw its semi-major axis), which
+// depends on the latitude alone, so a row's factor is the mean of ratio
+// over the row's height: 8-point Gauss-Legendre in y, with the latitude of
+// each node from PROJ's inverse at the central meridian (or, beyond the
+// map there, at the first column centre PROJ can invert). Rows PROJ cannot
+// invert anywhere (beyond the poles) take the nearest row's factor.
+func (g *Grid) sphereRowFactors(method string) {
+	listed := false
+	for _, m := range sphereMethods {
+		listed = listed || strings.Contains(method, m)
+	}
+	if !listed {
+		return
+	}
+	a, err := g.srs.SemiMajor()
+	if err != nil || !(a > 0) {
+		return
+	}
+	unit := 1.0
+	if g.unitArea != 0 {
+		unit = g.unitArea
+	}
+	const aw, fw = 6378137.0, 1 / 298.257223563
+	e2 := fw * (2 - fw)
+	k := aw * aw / (a * a) * (1 - e2) * unit
+	gt := g.GeoTransform
+	// Candidate x: the central meridian's (where PROJ maps longitude
+	// lon_0, as the WKT gives it, at the equator), then column centres
+	// from the middle out.
+	var xs []float64
+	lon0 := 0.0
+	if m := centralMeridian.FindStringSubmatch(g.WKT); m != nil {
+		if v, err := strconv.ParseFloat(m[1], 64); err == nil {
+			lon0 = v
+		}
+	}
+	cx, cy := []float64{lon0}, []float64{0}
+	g.FromLonLat(cx, cy, cx, cy)
+	if !math.IsNaN(cx[0]) {
+		xs = append(xs, cx[0])
+	}
+	for d := 0; d <= g.Width/2; d += max(1, g.Width/32) {
+		for _, c := range []int{g.Width/2 - d, g.Width/2 + d} {
+			if c >= 0 && c < g.Width {
+				xs = append(xs, gt[0]+(float64(c)+0.5)*gt[1])
+			}
+		}
+	}
+	one, lon, lat := make([]float64, 1), make([]float64, 1), make([]float64, 1)
+	latAt := func(y float64) float64 {
+		for _, x := range xs {
+			one[0], lat[0] = x, y
+			g.ToLonLat(one, lat, lon, lat)
+			if !math.IsNaN(lat[0]) && !math.IsNaN(lon[0]) && math.Abs(lat[0]) <= 90 {
+				return lat[0]
+			}
+		}
+		return math.NaN()
+	}
+	// 8-point Gauss-Legendre nodes and weights on [-1, 1].
+	nodes := [8]float64{-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363}
+	weights := [8]float64{0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763}
+	f := make([]float64, g.Height)
+	found := make([]bool, g.Height)
+	any := false
+	for r := range f {
+		mid, half := gt[3]+(float64(r)+0.5)*gt[5], gt[5]/2
+		sum := 0.0
+		found[r] = true
+		for n, t := range nodes {
+			phi := latAt(mid+half*t) * math.Pi / 180
+			if math.IsNaN(phi) {
+				found[r] = false
+				break
+			}
+			s := math.Sin(phi)
+			d := 1 - e2*s*s
+			sum += weights[n] * k / (d * d)
+		}
+		f[r] = sum / 2
+		any = any || found[r]
+	}
+	if !any {
+		return
+	}
+	last := -1
+	for r := range f {
+		if found[r] {
+			for j := last + 1; j < r; j++ {
+				if last < 0 || r-j < j-last {
+					f[j] = f[r]
+				} else {
+					f[j] = f[last]
+				}
+			}
+			last = r
+		}
+	}
+	for j := last + 1; j < len(f); j++ {
+		f[j] = f[last]
+	}
+	g.rowFactor = f
+	g.AreaMethod = "planar cell area of an equal-area projection computed on a sphere, scaled row by row to the true area on the WGS84 ellipsoid"
+}
+
+// centralMeridian finds a WKT1 projection's central meridian.
+var centralMeridian = regexp.MustCompile(`(?i)PARAMETER\["(?:central_meridian|longitude_of_center)",\s*([-+0-9.eE]+)\]`)
 
 // computeFactors fills blockFactor for projected grids that are not
 // equal-area. Blocks are small enough that at most about a million blocks

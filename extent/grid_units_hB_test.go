@@ -44,3 +44,57 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 		})
 	}
 }
+
+// TestSphereEqualAreaHB checks the cell area of equal-area grids whose
+// projection PROJ computes on a sphere while their latitudes are read as
+// WGS84's (Mollweide and Eckert IV on the WGS84 datum, Mollweide on a
+// sphere): before the fix their planar area was taken as the true area,
+// 0.67% too large at the equator and 0.67% too small near the poles, which
+// moved the AUC of a study at 50-60 degrees north by 2e-5. A global
+// Mollweide grid whose corners lie outside the map must still open (its
+// top-row cell spans about 80 to 84 degrees north), and an
+// ellipsoidal equal-area grid (EPSG:3035) keeps its exact planar area. The
+// expected areas are the cells' true WGS84 areas computed independently
+// with pyproj (Geod.polygon_area_perimeter of the outline densified 4096
+// points per side after pyproj's inverse projection;
+// testdata/geodesy/sphere_equal_area.py, converged to about 4e-8 between
+// 1024 and 4096 points on the top-row cell, 1e-10 on the others).
+func TestSphereEqualAreaHB(t *testing.T) {
+	regional := [6]float64{1000000, 10000, 0, 6000000, 0, -10000}
+	global := [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}
+	for _, tc := range []struct {
+		name         string
+		crs          string
+		gt           [6]float64
+		w, h, c, r   int
+		want, planar float64 // km2
+	}{
+		{"Mollweide WGS84", "ESRI:54009", regional, 10, 10, 3, 2, 100.138051775, 100},
+		{"Eckert IV WGS84", "ESRI:54012", regional, 10, 10, 3, 2, 100.093356226, 100},
+		{"Mollweide sphere", "+proj=moll +R=6371007 +no_defs +type=crs", regional, 10, 10, 3, 2, 100.363794944, 100},
+		{"global Mollweide equator", "ESRI:54009", global, 362, 182, 181, 91, 9933.06503284, 10000},
+		{"global Mollweide top row", "ESRI:54009", global, 362, 182, 181, 1, 10067.1579644, 10000},
+		{"EPSG:3035 stays planar", "EPSG:3035", [6]float64{4000000, 5000, 0, 3200000, 0, -5000}, 10, 10, 3, 2, 25.0000000068, 25},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			if !g.EqualArea {
+				t.Fatalf("grid not taken as equal-area (%s)", g.AreaMethod)
+			}
+			row := g.RowAreas(tc.r, nil)
+			if got := row[tc.c]; math.Abs(got/tc.want-1) > 1e-8 {
+				t.Errorf("cell area %.12g km2, want %.12g (true WGS84 area; planar %g)", got, tc.want, tc.planar)
+			}
+			if row[0] != row[tc.c] {
+				t.Errorf("cells of one row differ in area: %.12g and %.12g", row[0], row[tc.c])
+			}
+			if math.Abs(tc.want-tc.planar) < 1e-6 && row[tc.c] != tc.planar {
+				t.Errorf("ellipsoidal equal-area cell %.15g km2, want its planar area %g exactly", row[tc.c], tc.planar)
+			}
+		})
+	}
+}
