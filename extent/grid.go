@@ -120,11 +120,12 @@ type Grid struct {
 	wgs84 *godal.SpatialRef
 }
 
-// equalAreaMethods are WKT1 projection names of area-preserving projections.
+// equalAreaMethods are WKT1 projection names of area-preserving projections
+// (and "equal earth", the name GDAL gives Equal Earth, which has no WKT1 one).
 var equalAreaMethods = []string{
 	"albers_conic_equal_area", "lambert_azimuthal_equal_area", "mollweide",
 	"sinusoidal", "cylindrical_equal_area", "eckert_iv", "eckert_vi",
-	"goode_homolosine", "equal_earth", "quartic_authalic",
+	"goode_homolosine", "equal_earth", "equal earth", "quartic_authalic",
 }
 
 // OpenGrid reads the grid of the raster at path (first band).

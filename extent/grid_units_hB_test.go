@@ -53,7 +53,8 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 // moved the AUC of a study at 50-60 degrees north by 2e-5. A global
 // Mollweide grid whose corners lie outside the map must still open (its
 // top-row cell spans about 80 to 84 degrees north), and an
-// ellipsoidal equal-area grid (EPSG:3035) keeps its exact planar area. The
+// ellipsoidal equal-area grid (EPSG:3035, Equal Earth EPSG:8857) keeps its
+// exact planar area. The
 // expected areas are the cells' true WGS84 areas computed independently
 // with pyproj (Geod.polygon_area_perimeter of the outline densified 4096
 // points per side after pyproj's inverse projection;
@@ -75,6 +76,9 @@ func TestSphereEqualAreaHB(t *testing.T) {
 		{"global Mollweide equator", "ESRI:54009", global, 362, 182, 181, 91, 9933.06503284, 10000},
 		{"global Mollweide top row", "ESRI:54009", global, 362, 182, 181, 1, 10067.1579644, 10000},
 		{"EPSG:3035 stays planar", "EPSG:3035", [6]float64{4000000, 5000, 0, 3200000, 0, -5000}, 10, 10, 3, 2, 25.0000000068, 25},
+		// GDAL names Equal Earth's method "Equal Earth" (it has no WKT1
+		// name): taken as equal-area, with its exact planar area.
+		{"Equal Earth planar", "EPSG:8857", regional, 10, 10, 3, 2, 100.000000032, 100},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
