@@ -93,6 +93,10 @@ type Grid struct {
 	// datum), the square metres of true area per square CRS unit of each
 	// row (sphereRowFactors); nil when the planar area is the true area.
 	rowFactor []float64
+	// areaRange caches CellAreaRange.
+	areaRange  sync.Once
+	minCellKm2 float64
+	maxCellKm2 float64
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
 	// DatumShiftM is, for a latitude-longitude grid on another datum than
@@ -594,6 +598,46 @@ func (g *Grid) RowLonLat(row int, lons, lats []float64) {
 // cell.
 func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 	return g.RowAreasRange(row, 0, g.Width, dst)
+}
+
+// CellAreaRange returns the smallest and the largest cell area of the
+// grid in km^2 (computed once): on a latitude-longitude grid those of the
+// rows farthest from and nearest to the equator; on an equal-area grid the
+// planar area (times each row's factor on a sphere-based one); otherwise
+// the planar area times the smallest and largest block ratio (cells whose
+// ratio is interpolated between blocks lie between those).
+func (g *Grid) CellAreaRange() (lo, hi float64) {
+	g.areaRange.Do(func() {
+		var one [1]float64
+		at := func(row int) float64 { return g.RowAreasRange(row, 0, 1, one[:0])[0] }
+		switch {
+		case g.Geographic:
+			rows := []int{0, g.Height - 1}
+			if eq := int(g.GeoTransform[3] / -g.GeoTransform[5]); eq >= 0 && eq < g.Height {
+				rows = append(rows, eq)
+			}
+			g.minCellKm2, g.maxCellKm2 = math.Inf(1), 0
+			for _, r := range rows {
+				a := at(r)
+				g.minCellKm2, g.maxCellKm2 = math.Min(g.minCellKm2, a), math.Max(g.maxCellKm2, a)
+			}
+		case g.EqualArea && g.rowFactor == nil:
+			g.minCellKm2 = at(0)
+			g.maxCellKm2 = g.minCellKm2
+		default:
+			f := g.rowFactor
+			if f == nil {
+				f = g.blockFactor
+			}
+			lo, hi := math.Inf(1), 0.0
+			for _, v := range f {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+			planar := math.Abs(g.GeoTransform[1]*g.GeoTransform[5]) / 1e6
+			g.minCellKm2, g.maxCellKm2 = planar*lo, planar*hi
+		}
+	})
+	return g.minCellKm2, g.maxCellKm2
 }
 
 // rowArea returns the area of every cell of row when all of them have the
