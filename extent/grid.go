@@ -266,6 +266,21 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 			}
 		}
 		g.sphereRowFactors(lname)
+		if b, err := sr.SemiMinor(); g.rowFactor == nil && err == nil && b == sphereRadius(sr) {
+			// An azimuthal or conic equal-area projection on a sphere
+			// (+proj=laea +R=...) is equal-area on that sphere only,
+			// and its ratio to the WGS84 area (whose latitudes areasweep
+			// reads) varies along the rows too: block ratios as on other
+			// projections, where PROJ can invert every block (else the
+			// planar area, as before).
+			method := g.AreaMethod
+			if err := g.computeFactors(); err == nil {
+				g.EqualArea, g.unitArea = false, 0
+				return g, nil
+			}
+			g.blockFactor, g.colSeg, g.colT, g.factorStep, g.factorW = nil, nil, nil, 0, 0
+			g.AreaMethod = method
+		}
 		return g, nil
 	}
 	if err := g.computeFactors(); err != nil {
@@ -754,7 +769,13 @@ func factorBracket(x float64, step, n, size int) (k0, k1 int, t float64) {
 // cells spans one band of latitudes.
 var sphereMethods = []string{"mollweide", "eckert_iv", "eckert_vi", "goode_homolosine", "quartic_authalic"}
 
-// sphereRowFactors sets rowFactor on a grid in one of sphereMethods. The
+// sphereCylindrical are equal-area projections, pseudo-cylindrical or
+// cylindrical, that PROJ computes on the ellipsoid when the CRS has one:
+// only a CRS on a sphere needs sphereRowFactors.
+var sphereCylindrical = []string{"sinusoidal", "cylindrical_equal_area", "equal_earth", "equal earth"}
+
+// sphereRowFactors sets rowFactor on a grid in one of sphereMethods, or
+// in one of sphereCylindrical on a sphere. The
 // planar area of such a grid is the area on the sphere of radius a (the
 // CRS's semi-major axis), not the true area on the WGS84 ellipsoid, whose
 // latitudes areasweep reads: on the WGS84 datum 0.67% less at the equator
@@ -770,15 +791,23 @@ var sphereMethods = []string{"mollweide", "eckert_iv", "eckert_vi", "goode_homol
 // map there, at the first column centre PROJ can invert). Rows PROJ cannot
 // invert anywhere (beyond the poles) take the nearest row's factor.
 func (g *Grid) sphereRowFactors(method string) {
+	a, err := g.srs.SemiMajor()
+	if err != nil || !(a > 0) {
+		return
+	}
 	listed := false
 	for _, m := range sphereMethods {
 		listed = listed || strings.Contains(method, m)
 	}
-	if !listed {
-		return
+	if b, err := g.srs.SemiMinor(); err == nil && b == a {
+		// On a sphere (MODIS's sinusoidal grid, R = 6371007.181 m) the
+		// pseudo-cylindrical and cylindrical projections that PROJ also
+		// computes on an ellipsoid are equal-area on that sphere only.
+		for _, m := range sphereCylindrical {
+			listed = listed || strings.Contains(method, m)
+		}
 	}
-	a, err := g.srs.SemiMajor()
-	if err != nil || !(a > 0) {
+	if !listed {
 		return
 	}
 	unit := 1.0
@@ -866,6 +895,15 @@ func (g *Grid) sphereRowFactors(method string) {
 	}
 	g.rowFactor = f
 	g.AreaMethod = "planar cell area of an equal-area projection computed on a sphere, scaled row by row to the true area on the WGS84 ellipsoid"
+}
+
+// sphereRadius returns the semi-major axis of sr, or -1 when it has none.
+func sphereRadius(sr *godal.SpatialRef) float64 {
+	a, err := sr.SemiMajor()
+	if err != nil || !(a > 0) {
+		return -1
+	}
+	return a
 }
 
 // centralMeridian finds a WKT1 projection's central meridian.

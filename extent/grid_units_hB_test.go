@@ -2,6 +2,7 @@ package extent
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -50,7 +51,11 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 // WGS84's (Mollweide and Eckert IV on the WGS84 datum, Mollweide on a
 // sphere): before the fix their planar area was taken as the true area,
 // 0.67% too large at the equator and 0.67% too small near the poles, which
-// moved the AUC of a study at 50-60 degrees north by 2e-5. A global
+// moved the AUC of a study at 50-60 degrees north by 2e-5. On a sphere
+// (MODIS's sinusoidal grid, a Lambert azimuthal grid with +R) the
+// projections PROJ also computes on an ellipsoid are equal-area on the
+// sphere only and are scaled the same way (row by row, or block by block
+// for the azimuthal one), while on WGS84 they keep their planar area. A global
 // Mollweide grid whose corners lie outside the map must still open (its
 // top-row cell spans about 80 to 84 degrees north), and an
 // ellipsoidal equal-area grid (EPSG:3035, Equal Earth EPSG:8857) keeps its
@@ -79,6 +84,14 @@ func TestSphereEqualAreaHB(t *testing.T) {
 		// GDAL names Equal Earth's method "Equal Earth" (it has no WKT1
 		// name): taken as equal-area, with its exact planar area.
 		{"Equal Earth planar", "EPSG:8857", regional, 10, 10, 3, 2, 100.000000032, 100},
+		// MODIS's sinusoidal grid is on a sphere of 6371007.181 m, whose
+		// latitudes are read as WGS84's; a sinusoidal grid on WGS84 is
+		// equal-area on the ellipsoid and keeps its planar area.
+		{"sinusoidal on a sphere (MODIS)", "+proj=sinu +lon_0=0 +x_0=0 +y_0=0 +R=6371007.181 +units=m +no_defs +type=crs", regional, 10, 10, 3, 2, 100.425201989, 100},
+		{"sinusoidal on WGS84 stays planar", "ESRI:54008", regional, 10, 10, 3, 2, 99.9999999999, 100},
+		// An azimuthal equal-area grid on a sphere: its ratio to the
+		// WGS84 area varies along rows too, so it takes block ratios.
+		{"Lambert azimuthal on a sphere", "+proj=laea +lat_0=45 +lon_0=10 +R=6371007 +units=m +no_defs +type=crs", [6]float64{-250000, 5000, 0, 200000, 0, -5000}, 10, 10, 3, 2, 25.0653764497, 25},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
@@ -86,14 +99,15 @@ func TestSphereEqualAreaHB(t *testing.T) {
 				t.Fatal(err)
 			}
 			defer g.Close()
-			if !g.EqualArea {
-				t.Fatalf("grid not taken as equal-area (%s)", g.AreaMethod)
+			azimuthal := strings.Contains(tc.crs, "laea")
+			if g.EqualArea == azimuthal {
+				t.Fatalf("grid taken as equal-area: %v (%s)", g.EqualArea, g.AreaMethod)
 			}
 			row := g.RowAreas(tc.r, nil)
 			if got := row[tc.c]; math.Abs(got/tc.want-1) > 1e-8 {
 				t.Errorf("cell area %.12g km2, want %.12g (true WGS84 area; planar %g)", got, tc.want, tc.planar)
 			}
-			if row[0] != row[tc.c] {
+			if !azimuthal && row[0] != row[tc.c] {
 				t.Errorf("cells of one row differ in area: %.12g and %.12g", row[0], row[tc.c])
 			}
 			if math.Abs(tc.want-tc.planar) < 1e-6 && row[tc.c] != tc.planar {

@@ -12,6 +12,11 @@ cases = [
  ('ESRI:54009', (-18100000.0, 100000.0, 0, 9100000.0, 0, -100000.0), 181, 1),
  ('EPSG:3035', (4000000.0, 5000.0, 0, 3200000.0, 0, -5000.0), 3, 2),
  ('EPSG:8857', (1000000.0, 10000.0, 0, 6000000.0, 0, -10000.0), 3, 2),
+ # MODIS's sinusoidal grid (on a sphere) and an ellipsoidal sinusoidal one
+ ('+proj=sinu +lon_0=0 +x_0=0 +y_0=0 +R=6371007.181 +units=m +no_defs +type=crs', (1000000.0, 10000.0, 0, 6000000.0, 0, -10000.0), 3, 2),
+ ('ESRI:54008', (1000000.0, 10000.0, 0, 6000000.0, 0, -10000.0), 3, 2),
+ # Lambert azimuthal equal-area on a sphere
+ ('+proj=laea +lat_0=45 +lon_0=10 +R=6371007 +units=m +no_defs +type=crs', (-250000.0, 5000.0, 0, 200000.0, 0, -5000.0), 3, 2),
 ]
 G = pyproj.Geod(ellps='WGS84')
 for crs, gt, c, r in cases:
