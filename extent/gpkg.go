@@ -1,10 +1,14 @@
 package extent
 
 import (
+	"errors"
 	"fmt"
 	"os"
+	"strings"
 
 	"github.com/airbusgeo/godal"
+
+	"areasweep/extent/gdalmsg"
 )
 
 // LayerField is an attribute column of a GeoPackage layer.
@@ -36,10 +40,25 @@ func WriteLayer(path, name string, srs *godal.SpatialRef, gtype godal.GeometryTy
 	if err != nil {
 		return fmt.Errorf("extent: create %s: %w", path, err)
 	}
-	opts := make([]godal.CreateLayerOption, len(fields))
+	opts := make([]godal.CreateLayerOption, len(fields), len(fields)+1)
 	for i, fd := range fields {
 		opts[i] = godal.NewFieldDefinition(fd.Name, fd.Type)
 	}
+	// GDAL may report an error while creating a layer and create it all
+	// the same: GDAL 3.6's GeoPackage driver cannot write some CRSs as
+	// WKT1 (Equal Earth: "Unsupported conversion method"), says so and
+	// stores them as WKT2. Such messages go to the run log; only a layer
+	// GDAL did not create fails (godal then raises "unknown error"), with
+	// what GDAL said.
+	var said []string
+	opts = append(opts, godal.ErrLogger(func(ec godal.ErrorCategory, code int, msg string) error {
+		if msg == "unknown error" {
+			return errors.New(strings.Join(append(said, "the layer was not created"), "; "))
+		}
+		said = append(said, msg)
+		gdalmsg.Record(gdalmsg.Level(ec), code, msg)
+		return nil
+	}))
 	layer, err := ds.CreateLayer(name, srs, gtype, opts...)
 	if err != nil {
 		ds.Close()

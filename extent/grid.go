@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"regexp"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -81,6 +83,20 @@ type Grid struct {
 	// EqualArea is true for projections that preserve area, whose planar
 	// cell area is the true area.
 	EqualArea bool
+	// unitArea is, on an equal-area grid, the square metres in one square
+	// of the CRS's linear unit (1e6 for kilometres, 0.0929 for US survey
+	// feet); 0 means 1 (metres).
+	unitArea float64
+	// rowFactor holds, on an equal-area grid whose projection PROJ
+	// computes on a sphere while the CRS's latitudes are read as WGS84's
+	// (Mollweide, Eckert IV and VI, Goode, quartic authalic on the WGS84
+	// datum), the square metres of true area per square CRS unit of each
+	// row (sphereRowFactors); nil when the planar area is the true area.
+	rowFactor []float64
+	// areaRange caches CellAreaRange.
+	areaRange  sync.Once
+	minCellKm2 float64
+	maxCellKm2 float64
 	// AreaMethod describes in words how cell areas are computed.
 	AreaMethod string
 	// DatumShiftM is, for a latitude-longitude grid on another datum than
@@ -108,11 +124,12 @@ type Grid struct {
 	wgs84 *godal.SpatialRef
 }
 
-// equalAreaMethods are WKT1 projection names of area-preserving projections.
+// equalAreaMethods are WKT1 projection names of area-preserving projections
+// (and "equal earth", the name GDAL gives Equal Earth, which has no WKT1 one).
 var equalAreaMethods = []string{
 	"albers_conic_equal_area", "lambert_azimuthal_equal_area", "mollweide",
 	"sinusoidal", "cylindrical_equal_area", "eckert_iv", "eckert_vi",
-	"goode_homolosine", "equal_earth", "quartic_authalic",
+	"goode_homolosine", "equal_earth", "equal earth", "quartic_authalic",
 }
 
 // OpenGrid reads the grid of the raster at path (first band).
@@ -228,8 +245,9 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		g.toLL.close()
 		return nil, notOnEarth(wkt, err)
 	}
+	lname := ""
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {
-		lname := strings.ToLower(name)
+		lname = strings.ToLower(name)
 		for _, m := range equalAreaMethods {
 			if strings.Contains(lname, m) {
 				g.EqualArea = true
@@ -238,6 +256,31 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	}
 	if g.EqualArea {
 		g.AreaMethod = "planar cell area of an equal-area projection"
+		// The planar area is in the CRS's unit squared: a grid in
+		// kilometres or feet (+units=km, US survey feet) has its areas
+		// converted to square metres.
+		if s, ok := sr.AttrValue("PROJCS|UNIT", 1); ok {
+			if u, err := strconv.ParseFloat(s, 64); err == nil && u > 0 && u != 1 && !math.IsInf(u, 0) {
+				g.unitArea = u * u
+				g.AreaMethod = fmt.Sprintf("planar cell area of an equal-area projection (CRS unit %g m)", u)
+			}
+		}
+		g.sphereRowFactors(lname)
+		if b, err := sr.SemiMinor(); g.rowFactor == nil && err == nil && b == sphereRadius(sr) {
+			// An azimuthal or conic equal-area projection on a sphere
+			// (+proj=laea +R=...) is equal-area on that sphere only,
+			// and its ratio to the WGS84 area (whose latitudes areasweep
+			// reads) varies along the rows too: block ratios as on other
+			// projections, where PROJ can invert every block (else the
+			// planar area, as before).
+			method := g.AreaMethod
+			if err := g.computeFactors(); err == nil {
+				g.EqualArea, g.unitArea = false, 0
+				return g, nil
+			}
+			g.blockFactor, g.colSeg, g.colT, g.factorStep, g.factorW = nil, nil, nil, 0, 0
+			g.AreaMethod = method
+		}
 		return g, nil
 	}
 	if err := g.computeFactors(); err != nil {
@@ -572,6 +615,46 @@ func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 	return g.RowAreasRange(row, 0, g.Width, dst)
 }
 
+// CellAreaRange returns the smallest and the largest cell area of the
+// grid in km^2 (computed once): on a latitude-longitude grid those of the
+// rows farthest from and nearest to the equator; on an equal-area grid the
+// planar area (times each row's factor on a sphere-based one); otherwise
+// the planar area times the smallest and largest block ratio (cells whose
+// ratio is interpolated between blocks lie between those).
+func (g *Grid) CellAreaRange() (lo, hi float64) {
+	g.areaRange.Do(func() {
+		var one [1]float64
+		at := func(row int) float64 { return g.RowAreasRange(row, 0, 1, one[:0])[0] }
+		switch {
+		case g.Geographic:
+			rows := []int{0, g.Height - 1}
+			if eq := int(g.GeoTransform[3] / -g.GeoTransform[5]); eq >= 0 && eq < g.Height {
+				rows = append(rows, eq)
+			}
+			g.minCellKm2, g.maxCellKm2 = math.Inf(1), 0
+			for _, r := range rows {
+				a := at(r)
+				g.minCellKm2, g.maxCellKm2 = math.Min(g.minCellKm2, a), math.Max(g.maxCellKm2, a)
+			}
+		case g.EqualArea && g.rowFactor == nil:
+			g.minCellKm2 = at(0)
+			g.maxCellKm2 = g.minCellKm2
+		default:
+			f := g.rowFactor
+			if f == nil {
+				f = g.blockFactor
+			}
+			lo, hi := math.Inf(1), 0.0
+			for _, v := range f {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+			planar := math.Abs(g.GeoTransform[1]*g.GeoTransform[5]) / 1e6
+			g.minCellKm2, g.maxCellKm2 = planar*lo, planar*hi
+		}
+	})
+	return g.minCellKm2, g.maxCellKm2
+}
+
 // rowArea returns the area of every cell of row when all of them have the
 // same area (latitude-longitude and equal-area grids): the value
 // RowAreasRange would repeat.
@@ -603,6 +686,12 @@ func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 	}
 	planar := math.Abs(gt[1]*gt[5]) / 1e6
 	if g.EqualArea {
+		if g.unitArea != 0 {
+			planar = math.Abs(gt[1]*gt[5]) * g.unitArea / 1e6
+		}
+		if g.rowFactor != nil {
+			planar = math.Abs(gt[1]*gt[5]) * g.rowFactor[row] / 1e6
+		}
 		for i := range dst {
 			dst[i] = planar
 		}
@@ -673,6 +762,152 @@ func factorBracket(x float64, step, n, size int) (k0, k1 int, t float64) {
 	m0, m1 := blockCentre(k0, step, size), blockCentre(k0+1, step, size)
 	return k0, k0 + 1, (x - m0) / (m1 - m0)
 }
+
+// sphereMethods are WKT1 names of equal-area projections that PROJ
+// computes on a sphere of the CRS's semi-major axis (taking the datum's
+// latitudes as the sphere's) and that are pseudo-cylindrical: a row of
+// cells spans one band of latitudes.
+var sphereMethods = []string{"mollweide", "eckert_iv", "eckert_vi", "goode_homolosine", "quartic_authalic"}
+
+// sphereCylindrical are equal-area projections, pseudo-cylindrical or
+// cylindrical, that PROJ computes on the ellipsoid when the CRS has one:
+// only a CRS on a sphere needs sphereRowFactors.
+var sphereCylindrical = []string{"sinusoidal", "cylindrical_equal_area", "equal_earth", "equal earth"}
+
+// sphereRowFactors sets rowFactor on a grid in one of sphereMethods, or
+// in one of sphereCylindrical on a sphere. The
+// planar area of such a grid is the area on the sphere of radius a (the
+// CRS's semi-major axis), not the true area on the WGS84 ellipsoid, whose
+// latitudes areasweep reads: on the WGS84 datum 0.67% less at the equator
+// and 0.67% more near the poles. The true area of an area element is its
+// planar area times
+//
+//	ratio(phi) = M N / a^2 = aw^2 (1 - e^2) / (a^2 (1 - e^2 sin^2 phi)^2)
+//
+// (M, N the WGS84 radii of curvature, aw its semi-major axis), which
+// depends on the latitude alone, so a row's factor is the mean of ratio
+// over the row's height: 8-point Gauss-Legendre in y, with the latitude of
+// each node from PROJ's inverse at the central meridian (or, beyond the
+// map there, at the first column centre PROJ can invert). Rows PROJ cannot
+// invert anywhere (beyond the poles) take the nearest row's factor.
+func (g *Grid) sphereRowFactors(method string) {
+	a, err := g.srs.SemiMajor()
+	if err != nil || !(a > 0) {
+		return
+	}
+	listed := false
+	for _, m := range sphereMethods {
+		listed = listed || strings.Contains(method, m)
+	}
+	if b, err := g.srs.SemiMinor(); err == nil && b == a {
+		// On a sphere (MODIS's sinusoidal grid, R = 6371007.181 m) the
+		// pseudo-cylindrical and cylindrical projections that PROJ also
+		// computes on an ellipsoid are equal-area on that sphere only.
+		for _, m := range sphereCylindrical {
+			listed = listed || strings.Contains(method, m)
+		}
+	}
+	if !listed {
+		return
+	}
+	unit := 1.0
+	if g.unitArea != 0 {
+		unit = g.unitArea
+	}
+	const aw, fw = 6378137.0, 1 / 298.257223563
+	e2 := fw * (2 - fw)
+	k := aw * aw / (a * a) * (1 - e2) * unit
+	gt := g.GeoTransform
+	// Candidate x: the central meridian's (where PROJ maps longitude
+	// lon_0, as the WKT gives it, at the equator), then column centres
+	// from the middle out.
+	var xs []float64
+	lon0 := 0.0
+	if m := centralMeridian.FindStringSubmatch(g.WKT); m != nil {
+		if v, err := strconv.ParseFloat(m[1], 64); err == nil {
+			lon0 = v
+		}
+	}
+	cx, cy := []float64{lon0}, []float64{0}
+	g.FromLonLat(cx, cy, cx, cy)
+	if !math.IsNaN(cx[0]) {
+		xs = append(xs, cx[0])
+	}
+	for d := 0; d <= g.Width/2; d += max(1, g.Width/32) {
+		for _, c := range []int{g.Width/2 - d, g.Width/2 + d} {
+			if c >= 0 && c < g.Width {
+				xs = append(xs, gt[0]+(float64(c)+0.5)*gt[1])
+			}
+		}
+	}
+	one, lon, lat := make([]float64, 1), make([]float64, 1), make([]float64, 1)
+	latAt := func(y float64) float64 {
+		for _, x := range xs {
+			one[0], lat[0] = x, y
+			g.ToLonLat(one, lat, lon, lat)
+			if !math.IsNaN(lat[0]) && !math.IsNaN(lon[0]) && math.Abs(lat[0]) <= 90 {
+				return lat[0]
+			}
+		}
+		return math.NaN()
+	}
+	// 8-point Gauss-Legendre nodes and weights on [-1, 1].
+	nodes := [8]float64{-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498, 0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363}
+	weights := [8]float64{0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620, 0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763}
+	f := make([]float64, g.Height)
+	found := make([]bool, g.Height)
+	any := false
+	for r := range f {
+		mid, half := gt[3]+(float64(r)+0.5)*gt[5], gt[5]/2
+		sum := 0.0
+		found[r] = true
+		for n, t := range nodes {
+			phi := latAt(mid+half*t) * math.Pi / 180
+			if math.IsNaN(phi) {
+				found[r] = false
+				break
+			}
+			s := math.Sin(phi)
+			d := 1 - e2*s*s
+			sum += weights[n] * k / (d * d)
+		}
+		f[r] = sum / 2
+		any = any || found[r]
+	}
+	if !any {
+		return
+	}
+	last := -1
+	for r := range f {
+		if found[r] {
+			for j := last + 1; j < r; j++ {
+				if last < 0 || r-j < j-last {
+					f[j] = f[r]
+				} else {
+					f[j] = f[last]
+				}
+			}
+			last = r
+		}
+	}
+	for j := last + 1; j < len(f); j++ {
+		f[j] = f[last]
+	}
+	g.rowFactor = f
+	g.AreaMethod = "planar cell area of an equal-area projection computed on a sphere, scaled row by row to the true area on the WGS84 ellipsoid"
+}
+
+// sphereRadius returns the semi-major axis of sr, or -1 when it has none.
+func sphereRadius(sr *godal.SpatialRef) float64 {
+	a, err := sr.SemiMajor()
+	if err != nil || !(a > 0) {
+		return -1
+	}
+	return a
+}
+
+// centralMeridian finds a WKT1 projection's central meridian.
+var centralMeridian = regexp.MustCompile(`(?i)PARAMETER\["(?:central_meridian|longitude_of_center)",\s*([-+0-9.eE]+)\]`)
 
 // computeFactors fills blockFactor for projected grids that are not
 // equal-area. Blocks are small enough that at most about a million blocks

@@ -60,7 +60,14 @@ func Install() {
 
 //export gdalmsgRecord
 func gdalmsgRecord(level, code C.int, msg *C.char) {
-	m := Message{Level: Level(level), Code: int(code), Text: C.GoString(msg)}
+	Record(Level(level), int(code), C.GoString(msg))
+}
+
+// Record keeps a message for the run log as the recorder does: one that
+// GDAL raised inside a godal call whose handler let it pass because the
+// call succeeded all the same.
+func Record(level Level, code int, text string) {
+	m := Message{Level: level, Code: code, Text: text}
 	if m.Level < Warning {
 		return
 	}

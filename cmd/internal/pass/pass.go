@@ -19,8 +19,31 @@ import (
 
 // AreaUnitsPerKm2 converts km^2 to the integer area units the accumulators
 // sum: 1/4096 m^2, so that the whole Earth (5.1e14 m^2) is 2.1e18 units,
-// inside int64, while a 30 m cell keeps 7 significant digits.
+// inside int64, while a 30 m cell keeps 7 significant digits. AreaUnits
+// refines it on grids of small cells.
 const AreaUnitsPerKm2 = 1e6 * 4096
+
+// maxGridUnits bounds the units of a whole grid (the whole Earth's at
+// AreaUnitsPerKm2, 2.1e18), inside int64.
+const maxGridUnits = 2.1e18
+
+// AreaUnits returns the integer area units per km^2 the passes over grid g
+// use: AreaUnitsPerKm2, doubled while g's smallest cell holds fewer than
+// 2^30 units (a rounding of up to 4.7e-10 of its area) and the whole grid
+// stays within maxGridUnits. Cells of 0.26 km2 and more (about 512 m)
+// keep AreaUnitsPerKm2; on a grid of 1 m cells AreaUnitsPerKm2 rounded a
+// cell's area by up to 1.6e-4 of it, which moved an AUC by 3e-7. The
+// units depend on the grid alone, so every worker and shard of a run uses
+// the same.
+func AreaUnits(g *extent.Grid) float64 {
+	lo, hi := g.CellAreaRange()
+	u := float64(AreaUnitsPerKm2)
+	total := hi * float64(g.Width) * float64(g.Height)
+	for lo > 0 && lo*u < 1<<30 && total*u*2 <= maxGridUnits {
+		u *= 2
+	}
+	return u
+}
 
 // InternalError is an error of the pass that is a bug, not a problem of
 // the raster: a worker that failed, or sums that would not merge.
@@ -49,6 +72,11 @@ type Raster struct {
 	// narrow: every stored value is a float32 (the band's type is Byte,
 	// Int8, UInt16, Int16 or Float32), so a kept block can be float32.
 	narrow bool
+	// signedByte: a Byte band that declares its bytes signed (a GeoTIFF
+	// with SampleFormat signed, which GDAL before 3.7 opens as Byte with
+	// PIXELTYPE=SIGNEDBYTE and reads as 0..255): decode reads 128..255 as
+	// -128..-1, as GDAL 3.7 and later read the Int8 band.
+	signedByte bool
 	// open gives each worker of a pass its own Source.
 	open func() (Source, error)
 	// keep is the budget (bytes) of blocks Sample keeps for the next
@@ -137,6 +165,7 @@ func Open(path string) (*Raster, error) {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
 		r.narrow = true
 	}
+	r.signedByte = st.DataType == godal.Byte && r.band.Metadata("PIXELTYPE", godal.Domain("IMAGE_STRUCTURE")) == "SIGNEDBYTE"
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
 }
@@ -163,12 +192,20 @@ func BandProblem(b godal.Band) string {
 	return ""
 }
 
-// decode turns stored values into model values in place: no-data, NaN and
+// decode turns stored values into model values in place: a signed Byte
+// band's bytes are read as signed (signedByte), no-data, NaN and
 // infinite values become NaN, the others are scaled and offset when the
 // band declares a scale or offset. A zero is always +0: -0 and +0 are one
 // value, and keeping both would let the order in which blocks reach a
 // worker decide which one a minimum or maximum reports.
 func (r *Raster) decode(buf []float64) {
+	if r.signedByte {
+		for i, v := range buf {
+			if v > 127 {
+				buf[i] = v - 256
+			}
+		}
+	}
 	nan := math.NaN()
 	if r.scale == 1 && r.offset == 0 {
 		nodata, has, near := r.nodata, r.hasNodata, r.near
@@ -763,9 +800,10 @@ func RowWeights(g *extent.Grid, row, c0, c1 int, areas []float64, weights []int6
 	}
 	weights = weights[:len(areas)]
 	lastA, lastW := -1.0, int64(0)
+	units := AreaUnits(g)
 	for x, a := range areas {
 		if a != lastA { // constant along rows of most grids
-			lastA, lastW = a, int64(math.Round(a*AreaUnitsPerKm2))
+			lastA, lastW = a, int64(math.Round(a*units))
 		}
 		weights[x] = lastW
 	}

@@ -78,8 +78,16 @@ func (s *Study) openGrid() error {
 				// GDAL skips such a file: the copy would lack it too.
 				first = "remove its first line (the XML declaration <?xml ...?>, which makes GDAL skip the file too), then "
 			}
+			vrt := ""
+			if strings.Contains(what, "the CRS") {
+				// GDAL writes a CRS that GeoTIFF keys cannot hold (Equal
+				// Earth, with GDAL 3.6) into an .aux.xml: a GeoTIFF copy
+				// would get one too. A virtual raster holds any CRS.
+				own := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.vrt"
+				vrt = fmt.Sprintf("; if the copy gets an .aux.xml of its own (a GeoTIFF cannot hold every CRS), make a virtual raster instead, which holds any CRS and reads the cells from %s (gdal_translate -of VRT %s %s), and give %s", m.Path, shellArg(m.Path), shellArg(own), own)
+			}
 			return fault.BadInput(fmt.Errorf("model %s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
-				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s", m.Name, m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out))
+				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s%s", m.Name, m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out, vrt))
 		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {

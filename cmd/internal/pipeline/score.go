@@ -249,7 +249,7 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	if err != nil {
 		return extentScore{}, fmt.Errorf("model %s extent %s: %w", model, mem.ID, err)
 	}
-	sc.SetScores(out, pass.AreaUnitsPerKm2)
+	sc.SetScores(out, pass.AreaUnits(s.grid))
 	if !sc.Scored {
 		return extentScore{sc: sc}, nil
 	}
@@ -317,7 +317,7 @@ func (s *Study) rings(model string, accs []*metrics.Accumulator, presence func(i
 				return fmt.Errorf("ring %s-%s: %w", s.fam.Members[b].ID, s.fam.Members[a].ID, st.err)
 			}
 			if r.Defined {
-				rs = append(rs, report.NewRing(name, model, s.fam.Members[a].ID, s.fam.Members[b].ID, r, pass.AreaUnitsPerKm2))
+				rs = append(rs, report.NewRing(name, model, s.fam.Members[a].ID, s.fam.Members[b].ID, r, pass.AreaUnits(s.grid)))
 			}
 		}
 		if len(rs) == 0 {
