@@ -13,7 +13,7 @@ import (
 // m^2 rounded a 1 m cell (0.79 m^2, 3222 units) by up to 1.6e-4 of its
 // area and moved the AUC of such a study by 3e-7 against
 // sklearn.metrics.roc_auc_score with the cell areas as weights (the
-// helper's independent check, /tmp/hB/gen.py tiny_cells). Grids of cells of
+// independent check made while fixing it, not kept). Grids of cells of
 // 512 m and more keep AreaUnitsPerKm2 (their outputs are unchanged), and
 // no grid exceeds the whole Earth's 2.1e18 units.
 func TestAreaUnitsHB(t *testing.T) {
