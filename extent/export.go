@@ -65,6 +65,44 @@ func (f *Family) WriteGeoPackage(path string) error {
 	return WriteLayer(path, LayerName, f.Grid.srs, godal.GTMultiPolygon, fields, feats)
 }
 
+// GeoTIFFHoldsCRS reports whether a GeoTIFF that GDAL writes keeps a CRS
+// for the grid (written to memory and read back; a CRS read back at all
+// counts, since GeoTIFF keys may word an equivalent CRS differently). GDAL 3.6 cannot write
+// some CRSs as GeoTIFF keys (Equal Earth, EPSG:8857) and puts them in an
+// .aux.xml file instead, which areasweep never writes: WriteMembershipTIFF
+// then writes the grid without its CRS.
+func (g *Grid) GeoTIFFHoldsCRS() bool {
+	Register()
+	path := fmt.Sprintf("/vsimem/areasweep-crs-check-%p.tif", g)
+	defer func() {
+		godal.VSIUnlink(path)
+		godal.VSIUnlink(path + ".aux.xml") // where GDAL's PAM is on (not in a run: Configure)
+	}()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Byte, 1, 1)
+	if err != nil {
+		return false
+	}
+	if ds.SetGeoTransform(g.GeoTransform) != nil || ds.SetSpatialRef(g.srs) != nil {
+		ds.Close()
+		return false
+	}
+	if ds.Close() != nil {
+		return false
+	}
+	back, err := godal.Open(path, godal.RasterOnly())
+	if err != nil {
+		return false
+	}
+	defer back.Close()
+	sr := back.SpatialRef() // empty, not nil, when the file has none
+	if sr == nil {
+		return false
+	}
+	defer sr.Close()
+	wkt, err := sr.WKT()
+	return err == nil && wkt != ""
+}
+
 // WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member
 // (1 inside, 0 outside; band description = member id), deflate-compressed.
 func (f *Family) WriteMembershipTIFF(path string) error {

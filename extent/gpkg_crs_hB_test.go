@@ -57,3 +57,28 @@ func TestWriteLayerCRSWithoutWKT1HB(t *testing.T) {
 		})
 	}
 }
+
+// TestGeoTIFFHoldsCRS: a GeoTIFF keeps the CRS of a latitude-longitude
+// grid and of an EPSG:3035 one, and not Equal Earth's (EPSG:8857) with the
+// GDAL 3.6 that Debian ships (GDAL puts it in an .aux.xml, which
+// areasweep never writes); the run warns then that extents.tif has none.
+func TestGeoTIFFHoldsCRS(t *testing.T) {
+	for _, c := range []struct {
+		crs  string
+		gt   [6]float64
+		want bool
+	}{
+		{"EPSG:4326", [6]float64{10, 0.1, 0, 50, 0, -0.1}, true},
+		{"EPSG:3035", [6]float64{4000000, 5000, 0, 3200000, 0, -5000}, true},
+		{"EPSG:8857", [6]float64{1000000, 10000, 0, 6000000, 0, -10000}, false},
+	} {
+		g, err := NewGrid(10, 10, c.gt, c.crs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := g.GeoTIFFHoldsCRS(); got != c.want {
+			t.Errorf("%s: GeoTIFFHoldsCRS %v, want %v (GDAL %d.%d)", c.crs, got, c.want, godal.Version().Major(), godal.Version().Minor())
+		}
+		g.Close()
+	}
+}

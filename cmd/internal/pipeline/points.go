@@ -122,6 +122,10 @@ func (s *Study) openGrid() error {
 		}
 		if i == 0 {
 			s.grid = g
+			if s.o.MembershipTIFF && !g.GeoTIFFHoldsCRS() {
+				s.warn(fmt.Sprintf("extents.tif will hold the grid of %s (its geotransform) but no CRS: GDAL's GeoTIFF writer cannot store this raster's CRS (%s) and areasweep writes no .aux.xml, so read extents.tif with the CRS of %s (extents.gpkg has it)",
+					m.Path, shortText(g.CRS, 40), m.Path))
+			}
 			if g.DatumShiftM >= 1 {
 				s.warn(fmt.Sprintf("model %s: %s is in latitude and longitude on another datum than WGS84 (%s); areasweep reads them as WGS84's, so the occurrences lie about %.0f m (%.2g of a cell side) from where that datum puts them: if that matters at this resolution, warp the raster to WGS84 (e.g. gdalwarp -t_srs EPSG:4326 %s %s)",
 					m.Name, m.Path, shortText(g.CRS, 40), g.DatumShiftM, g.DatumShiftM/g.MinCellSideM(), shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_wgs84.tif")))
