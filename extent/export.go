@@ -105,6 +105,8 @@ func (g *Grid) GeoTIFFHoldsCRS() bool {
 
 // WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member
 // (1 inside, 0 outside; band description = member id), deflate-compressed.
+// A duplicate holds no runs of its own (setStatus empties them) but has the
+// cells of the member it equals, so its band is that member's.
 func (f *Family) WriteMembershipTIFF(path string) error {
 	Register()
 	g := f.Grid
@@ -126,10 +128,25 @@ func (f *Family) WriteMembershipTIFF(path string) error {
 			ds.Close()
 			return err
 		}
-		if err := f.fillMemberBand(band, k); err != nil {
+		if err := f.fillMemberBand(band, f.cellsOf(k)); err != nil {
 			ds.Close()
 			return fmt.Errorf("extent: write %s: %w", path, err)
 		}
 	}
 	return ds.Close()
+}
+
+// cellsOf returns the member whose runs hold member k's cells: k itself,
+// or for a duplicate the earlier member it equals.
+func (f *Family) cellsOf(k int) int {
+	m := f.Members[k]
+	if m.Status != vocab.StatusDuplicate {
+		return k
+	}
+	for j := 0; j < k; j++ {
+		if f.Members[j].ID == m.DuplicateOf {
+			return j
+		}
+	}
+	return k
 }

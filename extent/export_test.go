@@ -1,0 +1,68 @@
+package extent
+
+import (
+	"path/filepath"
+	"testing"
+
+	"github.com/airbusgeo/godal"
+
+	"areasweep/extent/vocab"
+)
+
+// TestMembershipTIFFDuplicateBand: a duplicate member's band in extents.tif
+// holds the cells of the member it equals (README: one band per member, 1
+// inside; a duplicate's cells are that member's), not an empty band, and
+// an empty member's band is all 0. The region and the extra layer "same"
+// are the square 1..3 degrees on a 0.1-degree grid: 20 x 20 = 400 cell
+// centres inside, counted from the geometry.
+func TestMembershipTIFFDuplicateBand(t *testing.T) {
+	dir := t.TempDir()
+	ring := [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}}
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, ring)
+	same := writeGeoJSON(t, dir, "same.geojson", []string{"s"}, ring)
+	off := writeGeoJSON(t, dir, "off.geojson", []string{"o"}, [][][2]float64{{{50, 50}, {51, 50}, {51, 51}, {50, 51}, {50, 50}}})
+	g, v := geoGrid(t, 0, 4, 0.1, 40, 40)
+	f, err := Build(g, v, Spec{Region: region, Extra: []Named{{"same", same}, {"off", off}}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != vocab.StatusDuplicate || m.DuplicateOf != "base" {
+		t.Fatalf("user_same: status %s of %q, want a duplicate of base", m.Status, m.DuplicateOf)
+	}
+	path := filepath.Join(dir, "extents.tif")
+	if err := f.WriteMembershipTIFF(path); err != nil {
+		t.Fatal(err)
+	}
+	ds, err := godal.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ds.Close()
+	bands := map[string][]byte{}
+	for _, b := range ds.Bands() {
+		buf := make([]byte, g.Width*g.Height)
+		if err := b.Read(0, 0, buf, g.Width, g.Height); err != nil {
+			t.Fatal(err)
+		}
+		bands[b.Description()] = buf
+	}
+	count := func(id string) (n int) {
+		for _, x := range bands[id] {
+			n += int(x)
+		}
+		return n
+	}
+	for _, c := range []struct {
+		id   string
+		want int
+	}{{"base", 400}, {"user_same", 400}, {"user_off", 0}} {
+		if n := count(c.id); n != c.want {
+			t.Errorf("band %s has %d cells set, want %d", c.id, n, c.want)
+		}
+	}
+	for i := range bands["base"] {
+		if bands["base"][i] != bands["user_same"][i] {
+			t.Fatalf("band user_same differs from base at cell %d", i)
+		}
+	}
+}
