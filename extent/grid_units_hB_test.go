@@ -21,14 +21,31 @@ type equalAreaCell struct {
 	want, planar float64 // km2
 }
 
+// equalAreaCellSet is the golden file's cases by name.
+type equalAreaCellSet map[string]equalAreaCell
+
+// grid returns the case called name and its grid.
+func (cells equalAreaCellSet) grid(t *testing.T, name string) (equalAreaCell, *Grid) {
+	t.Helper()
+	tc, ok := cells[name]
+	if !ok {
+		t.Fatalf("no golden case %q", name)
+	}
+	g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tc, g
+}
+
 // equalAreaCells reads the golden file, by case name.
-func equalAreaCells(t *testing.T) map[string]equalAreaCell {
+func equalAreaCells(t *testing.T) equalAreaCellSet {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join("..", "testdata", "geodesy", "equal_area_cells.txt"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	cells := map[string]equalAreaCell{}
+	cells := equalAreaCellSet{}
 	for _, line := range strings.Split(strings.TrimSpace(string(b)), "\n") {
 		if strings.HasPrefix(line, "#") {
 			continue
@@ -70,14 +87,7 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 	cells := equalAreaCells(t)
 	for _, name := range []string{"metres", "kilometres", "US survey feet"} {
 		t.Run(name, func(t *testing.T) {
-			tc, ok := cells[name]
-			if !ok {
-				t.Fatalf("no golden case %q", name)
-			}
-			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
-			if err != nil {
-				t.Fatal(err)
-			}
+			tc, g := cells.grid(t, name)
 			defer g.Close()
 			if !g.EqualArea {
 				t.Fatalf("grid not taken as equal-area (%s)", g.AreaMethod)
@@ -112,14 +122,7 @@ func TestSphereEqualAreaHB(t *testing.T) {
 		"global Mollweide top row", "EPSG:3035 stays planar", "Equal Earth planar", "sinusoidal on a sphere (MODIS)",
 		"sinusoidal on WGS84 stays planar", "Lambert azimuthal on a sphere"} {
 		t.Run(name, func(t *testing.T) {
-			tc, ok := cells[name]
-			if !ok {
-				t.Fatalf("no golden case %q", name)
-			}
-			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
-			if err != nil {
-				t.Fatal(err)
-			}
+			tc, g := cells.grid(t, name)
 			defer g.Close()
 			// An azimuthal equal-area grid on a sphere: its ratio to the
 			// WGS84 area varies along rows too, so it takes block ratios
