@@ -17,15 +17,8 @@ import (
 // centres inside, counted from the geometry.
 func TestMembershipTIFFDuplicateBand(t *testing.T) {
 	dir := t.TempDir()
-	ring := [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}}
-	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, ring)
-	same := writeGeoJSON(t, dir, "same.geojson", []string{"s"}, ring)
-	off := writeGeoJSON(t, dir, "off.geojson", []string{"o"}, [][][2]float64{{{50, 50}, {51, 50}, {51, 51}, {50, 51}, {50, 50}}})
-	g, v := geoGrid(t, 0, 4, 0.1, 40, 40)
-	f, err := Build(g, v, Spec{Region: region, Extra: []Named{{"same", same}, {"off", off}}}, nil, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	f := sameAndOffFamily(t, dir)
+	g := f.Grid
 	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != vocab.StatusDuplicate || m.DuplicateOf != "base" {
 		t.Fatalf("user_same: status %s of %q, want a duplicate of base", m.Status, m.DuplicateOf)
 	}

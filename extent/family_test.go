@@ -263,10 +263,12 @@ func TestEcoregionSelection(t *testing.T) {
 	}
 }
 
-// TestEmptyAndDuplicateMembers: a user polygon equal to the base is a
-// duplicate and one off the grid is empty; both are reported, not dropped.
-func TestEmptyAndDuplicateMembers(t *testing.T) {
-	dir := t.TempDir()
+// sameAndOffFamily builds, on a 0.1-degree grid of 40 x 40 cells, the
+// family of the square 1..3 degrees as region with two extra layers: the
+// same square ("same", a duplicate of the base) and one off the grid
+// ("off", empty).
+func sameAndOffFamily(t *testing.T, dir string) *Family {
+	t.Helper()
 	ring := [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}}
 	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, ring)
 	same := writeGeoJSON(t, dir, "same.geojson", []string{"s"}, ring)
@@ -276,6 +278,13 @@ func TestEmptyAndDuplicateMembers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return f
+}
+
+// TestEmptyAndDuplicateMembers: a user polygon equal to the base is a
+// duplicate and one off the grid is empty; both are reported, not dropped.
+func TestEmptyAndDuplicateMembers(t *testing.T) {
+	f := sameAndOffFamily(t, t.TempDir())
 	if m := f.Members[memberIdx(t, f, "user_same")]; m.Status != vocab.StatusDuplicate || m.DuplicateOf != "base" {
 		t.Errorf("user_same: status %s of %q", m.Status, m.DuplicateOf)
 	}
