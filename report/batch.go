@@ -351,10 +351,11 @@ func studyRow(r *Results, id, model string) BatchRow {
 // standInReason is why the study's base extent was left out when another
 // extent stands in for it: the reason its scores gave when they all gave
 // the same one ("no test points inside this extent"), else the reason the
-// analysis recorded; "" when the base extent itself is the reference.
+// analysis recorded; "" when the base extent itself is the reference, or
+// when no extent was scored (BaseExtent is empty: nothing stands in).
 func standInReason(r *Results) string {
 	sens := r.Sensitivity
-	if sens.BaseExtent == vocab.BaseID {
+	if sens.BaseExtent == vocab.BaseID || sens.BaseExtent == "" {
 		return ""
 	}
 	why := ""

@@ -42,8 +42,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 		sw = "areasweep"
 	}
 	c := s.Counts
-	methods := fmt.Sprintf("Each of the %d stud%s of the batch was run with %s into its own folder, with the occurrence records, models, region and extent settings of its row of the study table. ",
-		c.Studies, ies(c.Studies), sw) + ExtentSensitiveDefinition + " " + s.toleranceSentence() +
+	methods := s.runSentence(sw) + ExtentSensitiveDefinition + " " + s.toleranceSentence() +
 		" The extent effect of a model is the paired AUC difference from the base extent of largest magnitude, with its interval; " +
 		"each study's extents are built from its own region, points and buffers, so the extent effects of two studies compare different extents, " +
 		"and an extent of one name (region_50km, hull) differs between studies."
@@ -75,8 +74,8 @@ func (s *BatchSummary) methodsSections() []textSection {
 		results = append(results, e)
 	}
 	if c.NullPairs > 0 {
-		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pairs%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
+		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
+			c.Above, c.NullPairs, plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -98,6 +97,24 @@ func (s *BatchSummary) methodsSections() []textSection {
 		refs = append(refs, hijmans2012)
 	}
 	return append(secs, textSection{Heading: "References", List: refs})
+}
+
+// runSentence opens the methods text: how the studies that gave results
+// were run (failed studies are named apart, in their own section).
+func (s *BatchSummary) runSentence(sw string) string {
+	const how = " with %s into its own folder, with the occurrence records, models, region and extent settings of its row of the study table. "
+	c := s.Counts
+	who := fmt.Sprintf("Each of the %d studies of the batch", c.Succeeded)
+	switch {
+	case c.Succeeded == 0:
+		return fmt.Sprintf("Each study of the batch was to be run"+how, sw)
+	case c.Succeeded == 1:
+		who = "The one study of the batch"
+	}
+	if c.Failed > 0 {
+		who += " that gave results"
+	}
+	return fmt.Sprintf(who+" was run"+how, sw)
 }
 
 // CountSentence is the headline count: "AUC was extent-sensitive for 31 of
@@ -325,6 +342,11 @@ func (s *BatchSummary) areaSentence() string {
 	}
 	lo := slices.MinFunc(ok, func(a, b StudySummary) int { return cmp.Compare(a.BaseAreaKm2, b.BaseAreaKm2) })
 	hi := slices.MaxFunc(ok, func(a, b StudySummary) int { return cmp.Compare(a.BaseAreaKm2, b.BaseAreaKm2) })
+	if fmtArea(lo.BaseAreaKm2) == fmtArea(hi.BaseAreaKm2) {
+		// Two ends that print alike (one region for every study) would
+		// read as a span between two studies.
+		return fmt.Sprintf("Every base extent covered %s km².", fmtArea(hi.BaseAreaKm2))
+	}
 	return fmt.Sprintf("The base extents ran from %s km² (%s) to %s km² (%s).", fmtArea(lo.BaseAreaKm2), lo.ID, fmtArea(hi.BaseAreaKm2), hi.ID)
 }
 

@@ -572,3 +572,90 @@ func TestSummaryNotJudged(t *testing.T) {
 		t.Errorf("summary.html marks %d rows not judged, want 1 (few)", bytes.Count(page, []byte("(not judged)")))
 	}
 }
+
+// TestSummaryEdgeSentences checks the summary's sentences on batches found
+// wrong by running `areasweep batch` on small generated studies and
+// checking every number against the studies' results.json (HF's audit):
+// one study only, a failed study, base extents of one area, and a study
+// that scored no extent at all (a constant model: Analyze leaves
+// Sensitivity.BaseExtent empty, and no extent stands in for the base).
+func TestSummaryEdgeSentences(t *testing.T) {
+	const T = DefaultToleranceAUC
+	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
+	one := func() *Results {
+		return handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}, points: 12})
+	}
+	withArea := func(r *Results, km2 float64) *Results {
+		r.Extents = append(r.Extents, Extent{ID: "base", AreaKm2: km2})
+		return r
+	}
+	// nothingScored is a study none of whose extents could be scored, as
+	// results.json records it for a constant model (sensitivity:
+	// base_extent "", scored_extents [], the base extent unscored).
+	nothingScored := func() *Results {
+		r := handStudy(T, handModel{name: "flat", aucs: map[string]float64{}})
+		s := r.Sensitivity
+		s.BaseExtent, s.ScoredExtents, s.Spreads = "", []string{}, nil
+		s.ModelVerdicts[0].Base, s.ModelVerdicts[0].BaseDefined = "", false
+		s.Unscored = []UnscoredScore{{Model: "flat", Extent: "base", Reason: "constant suitability (minimum equals maximum on this extent)"}}
+		s.SkippedExtents = []SkippedExtent{{ID: "base", Reason: "no model could be scored"}}
+		return r
+	}
+	for _, c := range []struct {
+		name      string
+		studies   []StudyResult
+		want, not []string
+	}{
+		{name: "one study", studies: []StudyResult{{ID: "only", Results: one()}},
+			want: []string{"The one study of the batch was run with areasweep test into its own folder",
+				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)"},
+			not: []string{"Each of the 1 study", "1 of 1 study-model pairs"}},
+		{name: "a failed study", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
+			want: []string{"Each of the 2 studies of the batch that gave results was run with areasweep test into its own folder",
+				"1 further study failed to run and is not counted."},
+			not: []string{"Each of the 3 studies"}},
+		{name: "every study failed", studies: []StudyResult{{ID: "a", Err: errors.New("x")}, {ID: "b", Err: errors.New("y")}},
+			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave results."},
+			not:  []string{"Each of the 2 studies"}},
+		// 427570.46 and 427610.0 km² both print as 428,000 (fmtArea's three
+		// significant digits): the span would name two ends that read alike.
+		{name: "base extents of one area", studies: []StudyResult{{ID: "a", Results: withArea(one(), 427570.46)}, {ID: "b", Results: withArea(one(), 427610.0)}},
+			want: []string{"Every base extent covered 428,000 km²."},
+			not:  []string{"The base extents ran from"}},
+		{name: "no extent scored", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "flat", Results: nothingScored()}},
+			want: []string{"Not judged, so counted neither robust nor extent-sensitive: flat."},
+			not:  []string{"flat ( stands in", "(stands in for the base extent:", "In flat the base extent could not be scored", "In 1 study the base extent could not be scored"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			s, err := Summarize(c.studies)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var caption string
+			if f, ok := effectFigure(s); ok {
+				caption = f.Caption
+			}
+			page, err := s.page(nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			text := s.MethodsText()
+			for _, w := range c.want {
+				if !strings.Contains(text, w) {
+					t.Errorf("methods text lacks %q:\n%s", w, text)
+				}
+			}
+			for _, w := range c.not {
+				for name, got := range map[string]string{"methods text": text, "caption": caption, "page": string(page)} {
+					if strings.Contains(got, w) {
+						t.Errorf("%s holds %q", name, w)
+					}
+				}
+			}
+			if c.name == "no extent scored" && s.Counts.StandIn != 0 {
+				t.Errorf("StandIn = %d, want 0: no extent stands in", s.Counts.StandIn)
+			}
+		})
+	}
+}
