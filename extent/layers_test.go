@@ -196,7 +196,8 @@ func TestLatin1UnitIDs(t *testing.T) {
 
 // TestUnreadablePolygonFileAdvice: a polygon file GDAL cannot open is
 // refused with what to do; GDAL's advice for an open ring (an option to
-// accept it, with its name missing) is not passed on.
+// accept it, with its name missing) and its own wording of a file in no
+// format it knows are not passed on.
 func TestUnreadablePolygonFileAdvice(t *testing.T) {
 	Register()
 	dir := t.TempDir()
@@ -210,7 +211,8 @@ func TestUnreadablePolygonFileAdvice(t *testing.T) {
 		want    []string
 		notWant []string
 	}{
-		{garbage, []string{"region.gpkg is not a vector file GDAL can read", "give a GeoPackage, shapefile", "opens in a GIS"}, nil},
+		{garbage, []string{"region.gpkg is not a vector file GDAL can read (no vector format GDAL knows matches its content)", "give a GeoPackage, shapefile", "opens in a GIS"},
+			[]string{"not recognized", "`"}},
 		{open, []string{"open.geojson is not a vector file GDAL can read (a polygon's ring does not end at its first point)", "close each ring"},
 			[]string{"configuration option", "Non closed"}},
 	} {

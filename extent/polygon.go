@@ -159,6 +159,10 @@ func openVectorError(path string, err error) error {
 		// broken ring: say what is wrong instead.
 		cause = "a polygon's ring does not end at its first point"
 	}
+	if strings.Contains(cause, "not recognized as a supported file format") {
+		// GDAL's words, with its own quotes around the path.
+		cause = "no vector format GDAL knows matches its content"
+	}
 	if cause == "crs not found" {
 		// A GeoJSON "crs" member naming a CRS PROJ does not know.
 		cause = "the CRS its \"crs\" member names is not one PROJ knows"
