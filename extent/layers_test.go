@@ -211,7 +211,7 @@ func TestUnreadablePolygonFileAdvice(t *testing.T) {
 		want    []string
 		notWant []string
 	}{
-		{garbage, []string{"region.gpkg is not a vector file GDAL can read (no vector format GDAL knows matches its content)", "give a GeoPackage, shapefile", "opens in a GIS"},
+		{garbage, []string{"region.gpkg is not a vector file GDAL can read (no format GDAL knows matches its content)", "give a GeoPackage, shapefile", "opens in a GIS"},
 			[]string{"not recognized", "`"}},
 		{open, []string{"open.geojson is not a vector file GDAL can read (a polygon's ring does not end at its first point)", "close each ring"},
 			[]string{"configuration option", "Non closed"}},

@@ -71,7 +71,7 @@ func vectorAdvice(cause string) string {
 		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
 	case strings.Contains(cause, "SHAPE_RESTORE_SHX"):
 		return "; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the missing ones beside it, or export the layer again as a GeoPackage"
-	case strings.Contains(cause, "not recognized as a supported file format"):
+	case cause == gdalmsg.UnknownFormat:
 		return "; give a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons, and check that it opens in a GIS (a file cut short or renamed from another format does not)"
 	}
 	return "; check that the file opens in a GIS, or export it again as a GeoPackage"
@@ -158,10 +158,6 @@ func openVectorError(path string, err error) error {
 		// GDAL's own advice names no option and would accept the
 		// broken ring: say what is wrong instead.
 		cause = "a polygon's ring does not end at its first point"
-	}
-	if strings.Contains(cause, "not recognized as a supported file format") {
-		// GDAL's words, with its own quotes around the path.
-		cause = "no vector format GDAL knows matches its content"
 	}
 	if cause == "crs not found" {
 		// A GeoJSON "crs" member naming a CRS PROJ does not know.

@@ -117,6 +117,14 @@ var libtiffWords = strings.NewReplacer(
 // is replaced.
 var decodeError = regexp.MustCompile(`(?i)^.*(Decoding error at scanline|Corrupted \w+ table at scanline|Not enough data at scanline|Using code not yet in table|Discarding \d+ bytes to avoid buffer overrun|decompress\w*\(\)|\blerc_\w+\(\)|JPEGLib|premature end of (JPEG )?data).*$`)
 
+// unknownFormat matches GDAL's message for a file no driver opens
+// ("`PATH' not recognized as a supported file format", "... as being in a
+// supported file format" in later versions), quotes and path its own.
+var unknownFormat = regexp.MustCompile(`^.*not recognized as (being in )?a supported file format.*$`)
+
+// UnknownFormat is Cause's wording of that message.
+const UnknownFormat = "no format GDAL knows matches its content"
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -142,6 +150,7 @@ func Cause(text string) string {
 		return fmt.Sprintf("only %s of the %s bytes of %s are in the file", sub[3], sub[4], block)
 	})
 	line = decodeError.ReplaceAllString(line, "its compressed data cannot be decoded")
+	line = unknownFormat.ReplaceAllString(line, UnknownFormat)
 	line = libtiffWords.Replace(line)
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")

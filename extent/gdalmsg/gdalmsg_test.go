@@ -19,6 +19,9 @@ func TestCause(t *testing.T) {
 		{"Self-intersection at or near point 1 1\nsecond line", "Self-intersection at or near point 1 1"},
 		{"ERROR 10: Pointer 'hGeom' is NULL in 'OGR_G_GetGeometryType'.", "the library reported an error"},
 		{"  ", "the library reported an error"},
+		// GDAL 3.6's words for a file no driver opens, and later versions'.
+		{"`/tmp/x y/bad.tif' not recognized as a supported file format.", UnknownFormat},
+		{"`bad.gpkg' not recognized as being in a supported file format.", UnknownFormat},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
