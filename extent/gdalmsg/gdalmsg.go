@@ -125,6 +125,14 @@ var unknownFormat = regexp.MustCompile(`^.*not recognized as (being in )?a suppo
 // UnknownFormat is Cause's wording of that message.
 const UnknownFormat = "no format GDAL knows matches its content"
 
+// notGeoPackage matches GDAL's message for an SQLite file that is not a
+// GeoPackage; badJSON the JSON parser's for a GeoJSON file that is not
+// valid JSON.
+var (
+	notGeoPackage = regexp.MustCompile(`^.*GPKG: bad application_id=(0x[0-9a-fA-F]+) on .*$`)
+	badJSON       = regexp.MustCompile(`^At line (\d+), character (\d+): (.*)$`)
+)
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -151,6 +159,8 @@ func Cause(text string) string {
 	})
 	line = decodeError.ReplaceAllString(line, "its compressed data cannot be decoded")
 	line = unknownFormat.ReplaceAllString(line, UnknownFormat)
+	line = notGeoPackage.ReplaceAllString(line, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47")
+	line = badJSON.ReplaceAllString(line, "its JSON is not valid at line $1, character $2: $3")
 	line = libtiffWords.Replace(line)
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")

@@ -22,6 +22,10 @@ func TestCause(t *testing.T) {
 		// GDAL 3.6's words for a file no driver opens, and later versions'.
 		{"`/tmp/x y/bad.tif' not recognized as a supported file format.", UnknownFormat},
 		{"`bad.gpkg' not recognized as being in a supported file format.", UnknownFormat},
+		// An SQLite file that is no GeoPackage; a GeoJSON file cut short
+		// (GDAL 3.6's and its JSON parser's words).
+		{"GPKG: bad application_id=0x00000000 on 'empty.gpkg'", "an SQLite database but not a GeoPackage: its application id is 0x00000000, a GeoPackage's is 0x47504B47"},
+		{"At line 1, character 41: Unterminated array", "its JSON is not valid at line 1, character 41: Unterminated array"},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
