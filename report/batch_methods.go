@@ -89,7 +89,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 			}
 		}
 		secs = append(secs, textSection{Heading: "Failed studies",
-			Paragraphs: []string{fmt.Sprintf("%d stud%s gave no results and %s left out of every count above:", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])},
+			Paragraphs: []string{fmt.Sprintf("%d stud%s gave no usable results (each line says why: a failure, or results that no longer match the table) and %s left out of every count above:", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])},
 			List:       failed})
 	}
 	refs := []string{delong1988}
@@ -99,8 +99,8 @@ func (s *BatchSummary) methodsSections() []textSection {
 	return append(secs, textSection{Heading: "References", List: refs})
 }
 
-// runSentence opens the methods text: how the studies that gave results
-// were run (failed studies are named apart, in their own section).
+// runSentence opens the methods text: how the studies that gave usable
+// results were run (failed studies are named apart, in their own section).
 func (s *BatchSummary) runSentence(sw string) string {
 	const how = " with %s into its own folder, with the occurrence records, models, region and extent settings of its row of the study table. "
 	c := s.Counts
@@ -112,7 +112,7 @@ func (s *BatchSummary) runSentence(sw string) string {
 		who = "The one study of the batch"
 	}
 	if c.Failed > 0 {
-		who += " that gave results"
+		who += " that gave usable results"
 	}
 	return fmt.Sprintf(who+" was run"+how, sw)
 }
@@ -123,12 +123,12 @@ func (s *BatchSummary) runSentence(sw string) string {
 func (s *BatchSummary) CountSentence() string {
 	c := s.Counts
 	if c.Succeeded == 0 {
-		return fmt.Sprintf("None of the %d stud%s gave results.", c.Studies, ies(c.Studies))
+		return fmt.Sprintf("None of the %d stud%s gave usable results.", c.Studies, ies(c.Studies))
 	}
 	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d%s.",
 		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.Undetermined))
 	if c.Failed > 0 {
-		out += fmt.Sprintf(" %d further stud%s failed to run and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
+		out += fmt.Sprintf(" %d further stud%s gave no usable results and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 	}
 	return out
 }

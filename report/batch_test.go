@@ -159,7 +159,7 @@ func TestSummarizeCounts(t *testing.T) {
 	if s.Counts != want {
 		t.Errorf("counts %+v\nwant   %+v", s.Counts, want)
 	}
-	if got, want := s.CountSentence(), "AUC was extent-sensitive for 2 of 5 studies, robust for 2 and undetermined for 1. 1 further study failed to run and is not counted."; got != want {
+	if got, want := s.CountSentence(), "AUC was extent-sensitive for 2 of 5 studies, robust for 2 and undetermined for 1. 1 further study gave no usable results and is not counted."; got != want {
 		t.Errorf("count sentence %q\nwant %q", got, want)
 	}
 	verdicts := map[string]Judgement{}
@@ -293,7 +293,7 @@ func TestSummarizeMistakes(t *testing.T) {
 		}
 	}
 	s, err := Summarize(nil)
-	if err != nil || s.Counts.Studies != 0 || s.CountSentence() != "None of the 0 studies gave results." {
+	if err != nil || s.Counts.Studies != 0 || s.CountSentence() != "None of the 0 studies gave usable results." {
 		t.Errorf("empty batch: %v %+v %q", err, s.Counts, s.CountSentence())
 	}
 }
@@ -612,11 +612,11 @@ func TestSummaryEdgeSentences(t *testing.T) {
 				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)"},
 			not: []string{"Each of the 1 study", "1 of 1 study-model pairs"}},
 		{name: "a failed study", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
-			want: []string{"Each of the 2 studies of the batch that gave results was run with areasweep test into its own folder",
-				"1 further study failed to run and is not counted."},
+			want: []string{"Each of the 2 studies of the batch that gave usable results was run with areasweep test into its own folder",
+				"1 further study gave no usable results and is not counted."},
 			not: []string{"Each of the 3 studies"}},
 		{name: "every study failed", studies: []StudyResult{{ID: "a", Err: errors.New("x")}, {ID: "b", Err: errors.New("y")}},
-			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave results."},
+			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave usable results."},
 			not:  []string{"Each of the 2 studies"}},
 		// 427570.46 and 427610.0 km² both print as 428,000 (fmtArea's three
 		// significant digits): the span would name two ends that read alike.
