@@ -133,6 +133,33 @@ var (
 	badJSON       = regexp.MustCompile(`^At line (\d+), character (\d+): (.*)$`)
 )
 
+// More library wordings put in a user's words (each copied from GDAL
+// 3.6.2's output on the file kind named): libtiff's for a header field
+// past the end of a TIFF cut short; the XML parsers' for a KML, GML or
+// VRT file that is not valid XML (Expat's "no element found" is its
+// word for a file that ends inside an element); PROJ's error number and
+// its phrase for two CRSs with no transformation between them (with the
+// CRSs' WKT in backquotes); GDAL's for a GeoPackage of a later version.
+var (
+	tiffTagIO   = regexp.MustCompile(`^(?:(\S.*?): )?IO error during reading of "([^"]+)"; tag ignored.*$`)
+	kmlXML      = regexp.MustCompile(`^ERROR parsing kml .* :\s*(.*?) on line (\d+) at offset \d+$`)
+	gmlXML      = regexp.MustCompile(`^XML parsing of GML file failed : (.*?) at line (\d+), column (\d+)$`)
+	cplXML      = regexp.MustCompile(`^(?:Parse error on line (\d+), |Line (\d+): )((?:reached EOF|Didn't find|Found invalid|Unexpected|Missing).*)$`)
+	projCode    = regexp.MustCompile(`\bError \d+ \([^)]*\):\s*`)
+	noOperation = regexp.MustCompile(`^Cannot find coordinate operations from .*$`)
+	gpkgVersion = regexp.MustCompile(`^This version of GeoPackage (?:user_version|application_id)=\S+ \((\d+), (v[0-9.]+)\) on .* may only be partially supported$`)
+)
+
+// xmlCause words an XML parser's message at line n.
+func xmlCause(n, msg string) string {
+	msg = strings.TrimSuffix(strings.TrimSpace(msg), ".")
+	msg = strings.Replace(msg, "reached EOF", "reached the end of the file", 1)
+	if msg == "no element found" {
+		msg = "the file ends before its elements are closed, as a file cut short does"
+	}
+	return "its XML is not valid at line " + n + ": " + msg
+}
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -162,6 +189,26 @@ func Cause(text string) string {
 	line = notGeoPackage.ReplaceAllString(line, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47")
 	line = badJSON.ReplaceAllString(line, "its JSON is not valid at line $1, character $2: $3")
 	line = libtiffWords.Replace(line)
+	if m := tiffTagIO.FindStringSubmatch(line); m != nil {
+		// The file is named: a VRT's source is another file.
+		line = "its header field " + m[2] + " lies past the end of the file, as in a file cut short"
+		if m[1] != "" {
+			line = m[1] + ": " + line
+		}
+	}
+	if m := kmlXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[2], m[1])
+	} else if m := gmlXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[2]+", column "+m[3], m[1])
+	} else if m := cplXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[1]+m[2], m[3])
+	}
+	line = projCode.ReplaceAllString(line, "")
+	line = noOperation.ReplaceAllString(line, "PROJ knows no transformation between the two CRSs")
+	line = gpkgVersion.ReplaceAllString(line, "its GeoPackage version $2 ($1) is later than the ones GDAL reads in full")
+	// Any quotes the library puts around a name of its own are GDAL's
+	// `...' kind; ours are plain.
+	line = strings.ReplaceAll(line, "`", "'")
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")
 	if line == "" {

@@ -26,6 +26,28 @@ func TestCause(t *testing.T) {
 		// (GDAL 3.6's and its JSON parser's words).
 		{"GPKG: bad application_id=0x00000000 on 'empty.gpkg'", "an SQLite database but not a GeoPackage: its application id is 0x00000000, a GeoPackage's is 0x47504B47"},
 		{"At line 1, character 41: Unterminated array", "its JSON is not valid at line 1, character 41: Unterminated array"},
+		// Copied from GDAL 3.6.2's output on a GeoTIFF cut at byte 400
+		// (the libtiff function name in it is removed as before).
+		{"trunc400.tif: TIFFFetchNormalTag:IO error during reading of \"GeoPixelScale\"; tag ignored", "trunc400.tif: its header field GeoPixelScale lies past the end of the file, as in a file cut short"},
+		// Copied from GDAL 3.6.2's output on a KML file cut short, a GML
+		// file cut short and VRT files cut short or with a broken
+		// attribute (the last two are GDAL's own XML parser's).
+		{"ERROR parsing kml /tmp/hG/cases/kml_trunc.kml :no element found on line 8 at offset 716", "its XML is not valid at line 8: the file ends before its elements are closed, as a file cut short does"},
+		{"XML parsing of GML file failed : no element found at line 13, column 475", "its XML is not valid at line 13, column 475: the file ends before its elements are closed, as a file cut short does"},
+		{"XML parsing of GML file failed : mismatched tag at line 4, column 2", "its XML is not valid at line 4, column 2: mismatched tag"},
+		{"Parse error on line 7, reached EOF before closing quote.", "its XML is not valid at line 7: reached the end of the file before closing quote"},
+		{"IO error during reading of \"GDALNoDataValue\"; tag ignored", "its header field GDALNoDataValue lies past the end of the file, as in a file cut short"},
+		{"Line 7: Didn't find expected attribute value.", "its XML is not valid at line 7: Didn't find expected attribute value"},
+		// Copied from GDAL 3.6.2's output for --occurrences-crs
+		// "+proj=garbage +foo", a local engineering CRS and a Mars CRS
+		// (PROJ's).
+		{"Error 1027 (Invalid value for an argument): Unknown projection", "Unknown projection"},
+		{"Cannot find coordinate operations from `ENGCRS[\"arbitrary\",EDATUM[\"\"],CS[Cartesian,2]]' to `EPSG:4326'", "PROJ knows no transformation between the two CRSs"},
+		{"PROJ: proj_create_operations: Source and target ellipsoid do not belong to the same celestial body", "Source and target ellipsoid do not belong to the same celestial body"},
+		// Copied from GDAL 3.6.2's output on a GeoPackage whose
+		// user_version was set to 99999.
+		{"This version of GeoPackage user_version=0x0001869F (99999, v9.99.99) on '/tmp/hG/cases/gpkg_userversion.gpkg' may only be partially supported", "its GeoPackage version v9.99.99 (99999) is later than the ones GDAL reads in full"},
+		{"a name in `quotes'", "a name in 'quotes'"},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
