@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: |` + "`" + `|PROJ: |\bproj_[a-z]|Error \d+ \(|ERROR parsing|XML parsing of`)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: |` + "`" + `|PROJ: |\bproj_[a-z]|Error \d+ \(|ERROR parsing|XML parsing of|_TIFF|_tiff|[A-Za-z]::[A-Za-z]|Exception: `)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -506,6 +506,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences crs an unknown projection", f.run("--occurrences-crs", "+proj=garbage +foo"), 2, []string{"--occurrences-crs", "(Unknown projection)"}, "", ""},
 		// Expat's words for an XML file cut short reached the user with
 		// GDAL's "ERROR parsing kml" and "XML parsing of GML file failed".
+		// libtiff's "Can not read directory count" reached the user.
+		{"model a TIFF cut after 8 bytes", f.withModel(f.file("cut8.tif", "II*\x00\x08\x00\x00\x00")), 2, []string{"cut8.tif", "its TIFF header cannot be read: the file is cut short"}, "", ""},
 		{"region a KML file cut short", f.withRegion(f.file("cut.kml", `<?xml version="1.0" encoding="utf-8" ?>
 <kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark>`)), 2, []string{"cut.kml", "its XML is not valid at line 2", "ends before its elements are closed"}, "", ""},
 		{"region a GML file cut short", f.withRegion(f.file("cut.gml", `<?xml version="1.0" encoding="utf-8" ?>

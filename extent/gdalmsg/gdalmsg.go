@@ -150,6 +150,29 @@ var (
 	gpkgVersion = regexp.MustCompile(`^This version of GeoPackage (?:user_version|application_id)=\S+ \((\d+), (v[0-9.]+)\) on .* may only be partially supported$`)
 )
 
+// libtiff's and GDAL's words for a TIFF whose header is damaged (each
+// copied from GDAL 3.6.2's output on a GeoTIFF cut at bytes 4 to 200, one
+// with the BigTIFF magic number, one with a tile's offset or size past the
+// file's end, one with SamplesPerPixel set to 0, one with zero width and
+// one with an unknown compression code); the function names of libtiff
+// (_TIFF..., _tiff..., PredictorSetup) and GDAL's C++ methods
+// (Class::Method) that come before them; and the words of GDAL's and
+// GEOS's for a ring that does not close (a KML and a GML file with a
+// broken coordinate).
+var (
+	libraryFuncs  = regexp.MustCompile(`\b_?(?:_TIFF|_tiff)[A-Za-z0-9_]*:\s*|\bPredictorSetup:\s*|\b[A-Z][A-Za-z0-9]*::[A-Za-z0-9_]+:\s*|\b[A-Za-z]+Exception:\s*`)
+	tiffHeader    = regexp.MustCompile(`^.*\b(?:Cannot read header|Can not read directory(?: count)?|_tiffSeekProc:\s*Invalid argument)\.?$`)
+	tiffStrile    = regexp.MustCompile(`^.*Cannot read offset/size for strile around ~(\d+).*$`)
+	tiffBadValue  = regexp.MustCompile(`^(?:.*: )?Bad value (\S+) for "([A-Za-z]+)" tag.*$`)
+	tiffZeroTiles = regexp.MustCompile(`^.*Cannot handle zero number of (?:tiles|strips).*$`)
+	missingCodec  = regexp.MustCompile(`^.*missing codec of code (\d+).*$`)
+	openRing      = regexp.MustCompile(`^.*(?:Non closed ring detected|Points of LinearRing do not form a closed linestring).*$`)
+)
+
+// OpenRing is Cause's wording of GDAL's and GEOS's messages for a ring
+// that does not end at its first point.
+const OpenRing = "a polygon's ring does not end at its first point"
+
 // xmlCause words an XML parser's message at line n.
 func xmlCause(n, msg string) string {
 	msg = strings.TrimSuffix(strings.TrimSpace(msg), ".")
@@ -176,6 +199,13 @@ func Cause(text string) string {
 		}
 	}
 	line = libraryWords.ReplaceAllString(line, "")
+	line = tiffHeader.ReplaceAllString(line, "its TIFF header cannot be read: the file is cut short, or is no TIFF")
+	line = libraryFuncs.ReplaceAllString(line, "")
+	line = tiffStrile.ReplaceAllString(line, "the place or size of block $1 cannot be read, as in a file cut short")
+	line = tiffBadValue.ReplaceAllString(line, "its header field $2 has the invalid value $1")
+	line = tiffZeroTiles.ReplaceAllString(line, "its header gives a width, height or block size of 0")
+	line = missingCodec.ReplaceAllString(line, "its compression (code $1) is not one GDAL reads")
+	line = openRing.ReplaceAllString(line, OpenRing)
 	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
 		sub := shortRead.FindStringSubmatch(m)
 		block := "the block"

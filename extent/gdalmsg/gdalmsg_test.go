@@ -48,6 +48,25 @@ func TestCause(t *testing.T) {
 		// user_version was set to 99999.
 		{"This version of GeoPackage user_version=0x0001869F (99999, v9.99.99) on '/tmp/hG/cases/gpkg_userversion.gpkg' may only be partially supported", "its GeoPackage version v9.99.99 (99999) is later than the ones GDAL reads in full"},
 		{"a name in `quotes'", "a name in 'quotes'"},
+		// Copied from GDAL 3.6.2's output on damaged GeoTIFFs: cut at
+		// byte 4 and at byte 8, with the BigTIFF magic number in a classic
+		// TIFF, with a tile's offset past the end, SamplesPerPixel 0, width
+		// 0, compression code 34999, Predictor 9; and on a VRT whose pixel
+		// function is unknown.
+		{"/d/trunc4.tif: /d/trunc4.tif:Cannot read header", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"/d/trunc8.tif: /d/trunc8.tif: Can not read directory count", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"/d/bigtiff_magic.tif: _tiffSeekProc:Invalid argument", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"open: Invalid argument", "open: Invalid argument"},
+		{"_TIFFPartialReadStripArray:Cannot read offset/size for strile around ~1", "the place or size of block 1 cannot be read, as in a file cut short"},
+		{"/d/spp0.tif: _TIFFVSetField:/d/spp0.tif: Bad value 0 for \"SamplesPerPixel\" tag", "its header field SamplesPerPixel has the invalid value 0"},
+		{"/d/zerowidth.tif: Cannot handle zero number of tiles", "its header gives a width, height or block size of 0"},
+		{"/d/unknowncompr.tif: Cannot open file due to missing codec of code 34999", "its compression (code 34999) is not one GDAL reads"},
+		{"PredictorSetup:\"Predictor\" value 9 not supported", "\"Predictor\" value 9 not supported"},
+		{"VRTDerivedRasterBand::IRasterIO:Derived band pixel function 'nonexistentfn' not registered", "Derived band pixel function 'nonexistentfn' not registered"},
+		// Copied from GDAL 3.6.2's output on a KML and a GML file whose
+		// first coordinate was made text (GDAL's words, then GEOS's).
+		{"Non closed ring detected. To avoid accepting it, set the OGR_GEOMETRY_ACCEPT_UNCLOSED_RING configuration option to NO", OpenRing},
+		{"GEOSUnaryUnion_r: IllegalArgumentException: Points of LinearRing do not form a closed linestring", OpenRing},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
