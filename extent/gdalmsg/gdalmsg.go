@@ -169,6 +169,16 @@ var (
 	openRing      = regexp.MustCompile(`^.*(?:Non closed ring detected|Points of LinearRing do not form a closed linestring).*$`)
 )
 
+// GeoPackage and SQLite words for a damaged file (each copied from GDAL
+// 3.6.2's output on a GeoPackage cut to a third, and on one whose layer
+// table was dropped), and libcurl's for a host it cannot find (a GeoJSON
+// "crs" member whose link GDAL tried to fetch).
+var (
+	sqliteMalformed = regexp.MustCompile(`^.*database disk image is malformed.*$`)
+	gpkgNoTable     = regexp.MustCompile(`^Table/view (.*) is referenced in gpkg_contents, but does not exist$`)
+	noHost          = regexp.MustCompile(`^Could not resolve host: (.*)$`)
+)
+
 // OpenRing is Cause's wording of GDAL's and GEOS's messages for a ring
 // that does not end at its first point.
 const OpenRing = "a polygon's ring does not end at its first point"
@@ -206,6 +216,9 @@ func Cause(text string) string {
 	line = tiffZeroTiles.ReplaceAllString(line, "its header gives a width, height or block size of 0")
 	line = missingCodec.ReplaceAllString(line, "its compression (code $1) is not one GDAL reads")
 	line = openRing.ReplaceAllString(line, OpenRing)
+	line = sqliteMalformed.ReplaceAllString(line, "the database inside it is damaged, as in a file cut short or copied while it was being written")
+	line = gpkgNoTable.ReplaceAllString(line, "it lists a layer $1 whose table is not in the file")
+	line = noHost.ReplaceAllString(line, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only")
 	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
 		sub := shortRead.FindStringSubmatch(m)
 		block := "the block"

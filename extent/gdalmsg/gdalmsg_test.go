@@ -15,7 +15,7 @@ func TestCause(t *testing.T) {
 	for _, c := range []struct{ in, want string }{
 		{"ERROR 1: TIFFFillTile:Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024", "only 0 of the 1024 bytes of tile 3 are in the file"},
 		{"TIFFReadEncodedStrip() failed: Read error at row 64, col 0, strip 17; got 1520 bytes, expected 6164", "failed: only 1520 of the 6164 bytes of strip 17 are in the file"},
-		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "failed: database disk image is malformed"},
+		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
 		{"Self-intersection at or near point 1 1\nsecond line", "Self-intersection at or near point 1 1"},
 		{"ERROR 10: Pointer 'hGeom' is NULL in 'OGR_G_GetGeometryType'.", "the library reported an error"},
 		{"  ", "the library reported an error"},
@@ -63,6 +63,12 @@ func TestCause(t *testing.T) {
 		{"/d/unknowncompr.tif: Cannot open file due to missing codec of code 34999", "its compression (code 34999) is not one GDAL reads"},
 		{"PredictorSetup:\"Predictor\" value 9 not supported", "\"Predictor\" value 9 not supported"},
 		{"VRTDerivedRasterBand::IRasterIO:Derived band pixel function 'nonexistentfn' not registered", "Derived band pixel function 'nonexistentfn' not registered"},
+		// Copied from GDAL 3.6.2's output on a GeoPackage cut to a third,
+		// one whose layer table was dropped, and a GeoJSON file whose
+		// "crs" member links to the host x.
+		{"database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
+		{"Table/view region is referenced in gpkg_contents, but does not exist", "it lists a layer region whose table is not in the file"},
+		{"Could not resolve host: x", "it names a web address on the host x, which cannot be reached: areasweep reads local files only"},
 		// Copied from GDAL 3.6.2's output on a KML and a GML file whose
 		// first coordinate was made text (GDAL's words, then GEOS's).
 		{"Non closed ring detected. To avoid accepting it, set the OGR_GEOMETRY_ACCEPT_UNCLOSED_RING configuration option to NO", OpenRing},
