@@ -179,6 +179,15 @@ var (
 	noHost          = regexp.MustCompile(`^Could not resolve host: (.*)$`)
 )
 
+// GDAL's words for a read past the end of a file, with the address of
+// its buffer in hex (copied from GDAL 3.6.2's output on an ERDAS .img
+// file cut in half), and for a band a VRT takes from a source that lacks
+// it (on a VRT whose SourceBand was set to 9 on a one-band source).
+var (
+	vsiReadFailed = regexp.MustCompile(`^.*VSIF\w+\(0x[0-9a-fA-F]+,[^)]*\) @ (\d+) failed.*$`)
+	illegalBand   = regexp.MustCompile(`^(?:(.*): )?GDALDataset::GetRasterBand\((\d+)\) - Illegal band #$`)
+)
+
 // OpenRing is Cause's wording of GDAL's and GEOS's messages for a ring
 // that does not end at its first point.
 const OpenRing = "a polygon's ring does not end at its first point"
@@ -206,6 +215,13 @@ func Cause(text string) string {
 		if l = strings.TrimSpace(l); l != "" {
 			line = l
 			break
+		}
+	}
+	line = vsiReadFailed.ReplaceAllString(line, "its bytes end before byte $1 that its header points to, as in a file cut short")
+	if m := illegalBand.FindStringSubmatch(line); m != nil {
+		line = "it has no band " + m[2]
+		if m[1] != "" {
+			line = m[1] + ": " + line
 		}
 	}
 	line = libraryWords.ReplaceAllString(line, "")

@@ -69,6 +69,10 @@ func TestCause(t *testing.T) {
 		{"database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
 		{"Table/view region is referenced in gpkg_contents, but does not exist", "it lists a layer region whose table is not in the file"},
 		{"Could not resolve host: x", "it names a web address on the host x, which cannot be reached: areasweep reads local files only"},
+		// Copied from GDAL 3.6.2's output on an ERDAS .img file cut in
+		// half and on a VRT whose source band is 9 of a one-band file.
+		{"VSIFReadL(0x27d6a540,6*4) @ 332087 failed in HFAEntry()", "its bytes end before byte 332087 that its header points to, as in a file cut short"},
+		{"/d/model_good.tif: GDALDataset::GetRasterBand(9) - Illegal band #", "/d/model_good.tif: it has no band 9"},
 		// Copied from GDAL 3.6.2's output on a KML and a GML file whose
 		// first coordinate was made text (GDAL's words, then GEOS's).
 		{"Non closed ring detected. To avoid accepting it, set the OGR_GEOMETRY_ACCEPT_UNCLOSED_RING configuration option to NO", OpenRing},
