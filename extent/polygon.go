@@ -487,7 +487,7 @@ func noGeometry(g *godal.Geometry) bool {
 	if g == nil {
 		return true
 	}
-	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && h.Kind() == reflect.Pointer && h.IsNil() {
+	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && (h.Kind() == reflect.Pointer || h.Kind() == reflect.UnsafePointer) && h.IsNil() {
 		return true
 	}
 	return g.Empty()
