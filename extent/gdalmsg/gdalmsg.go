@@ -167,6 +167,7 @@ var (
 	tiffZeroTiles = regexp.MustCompile(`^.*Cannot handle zero number of (?:tiles|strips).*$`)
 	missingCodec  = regexp.MustCompile(`^.*missing codec of code (\d+).*$`)
 	openRing      = regexp.MustCompile(`^.*(?:Non closed ring detected|Points of LinearRing do not form a closed linestring).*$`)
+	onePoint      = regexp.MustCompile(`^.*point array must contain 0 or >1 elements.*$`)
 )
 
 // GeoPackage and SQLite words for a damaged file (each copied from GDAL
@@ -232,6 +233,7 @@ func Cause(text string) string {
 	line = tiffZeroTiles.ReplaceAllString(line, "its header gives a width, height or block size of 0")
 	line = missingCodec.ReplaceAllString(line, "its compression (code $1) is not one GDAL reads")
 	line = openRing.ReplaceAllString(line, OpenRing)
+	line = onePoint.ReplaceAllString(line, "a ring or line of it has a single point")
 	line = sqliteMalformed.ReplaceAllString(line, "the database inside it is damaged, as in a file cut short or copied while it was being written")
 	line = gpkgNoTable.ReplaceAllString(line, "it lists a layer $1 whose table is not in the file")
 	line = noHost.ReplaceAllString(line, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only")

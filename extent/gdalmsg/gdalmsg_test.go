@@ -77,6 +77,9 @@ func TestCause(t *testing.T) {
 		// first coordinate was made text (GDAL's words, then GEOS's).
 		{"Non closed ring detected. To avoid accepting it, set the OGR_GEOMETRY_ACCEPT_UNCLOSED_RING configuration option to NO", OpenRing},
 		{"GEOSUnaryUnion_r: IllegalArgumentException: Points of LinearRing do not form a closed linestring", OpenRing},
+		// Copied from GDAL 3.6.2's output on a GeoJSON ecoregion layer
+		// whose second unit's ring was made [[1,2]] (GEOS's words).
+		{"IllegalArgumentException: point array must contain 0 or >1 elements", "a ring or line of it has a single point"},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
