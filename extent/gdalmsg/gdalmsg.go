@@ -172,12 +172,16 @@ var (
 
 // GeoPackage and SQLite words for a damaged file (each copied from GDAL
 // 3.6.2's output on a GeoPackage cut to a third, and on one whose layer
-// table was dropped), and libcurl's for a host it cannot find (a GeoJSON
+// table was dropped, one whose declared geometry type was made POINT
+// for a layer of polygons, and one with a geometry blob of garbage
+// bytes), and libcurl's for a host it cannot find (a GeoJSON
 // "crs" member whose link GDAL tried to fetch).
 var (
 	sqliteMalformed = regexp.MustCompile(`^.*database disk image is malformed.*$`)
 	gpkgNoTable     = regexp.MustCompile(`^Table/view (.*) is referenced in gpkg_contents, but does not exist$`)
 	noHost          = regexp.MustCompile(`^Could not resolve host: (.*)$`)
+	gpkgGeomType    = regexp.MustCompile(`^geometry column type in '([^']*)\.[^.']*' is not consistent with type in gpkg_geometry_columns$`)
+	gpkgBadBlob     = regexp.MustCompile(`^Unable to read geometry$`)
 )
 
 // GDAL's words for a read past the end of a file, with the address of
@@ -236,6 +240,8 @@ func Cause(text string) string {
 	line = onePoint.ReplaceAllString(line, "a ring or line of it has a single point")
 	line = sqliteMalformed.ReplaceAllString(line, "the database inside it is damaged, as in a file cut short or copied while it was being written")
 	line = gpkgNoTable.ReplaceAllString(line, "it lists a layer $1 whose table is not in the file")
+	line = gpkgGeomType.ReplaceAllString(line, "the geometries of layer $1 are not of the type its GeoPackage declares for them")
+	line = gpkgBadBlob.ReplaceAllString(line, "a feature's geometry cannot be read: its bytes are damaged")
 	line = noHost.ReplaceAllString(line, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only")
 	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
 		sub := shortRead.FindStringSubmatch(m)

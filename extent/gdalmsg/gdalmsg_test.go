@@ -64,10 +64,13 @@ func TestCause(t *testing.T) {
 		{"PredictorSetup:\"Predictor\" value 9 not supported", "\"Predictor\" value 9 not supported"},
 		{"VRTDerivedRasterBand::IRasterIO:Derived band pixel function 'nonexistentfn' not registered", "Derived band pixel function 'nonexistentfn' not registered"},
 		// Copied from GDAL 3.6.2's output on a GeoPackage cut to a third,
-		// one whose layer table was dropped, and a GeoJSON file whose
+		// one whose layer table was dropped, one declaring POINT for its
+		// polygons, one with a garbage geometry blob, and a GeoJSON file whose
 		// "crs" member links to the host x.
 		{"database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
 		{"Table/view region is referenced in gpkg_contents, but does not exist", "it lists a layer region whose table is not in the file"},
+		{"geometry column type in 'region.geom' is not consistent with type in gpkg_geometry_columns", "the geometries of layer region are not of the type its GeoPackage declares for them"},
+		{"Unable to read geometry", "a feature's geometry cannot be read: its bytes are damaged"},
 		{"Could not resolve host: x", "it names a web address on the host x, which cannot be reached: areasweep reads local files only"},
 		// Copied from GDAL 3.6.2's output on an ERDAS .img file cut in
 		// half and on a VRT whose source band is 9 of a one-band file.
