@@ -67,7 +67,7 @@ func ReadShape(path string, g *Grid) (Shape, []string, error) {
 // knows (or cut short) is checked or exported again.
 func vectorAdvice(cause string) string {
 	switch {
-	case strings.Contains(cause, "Non closed ring"):
+	case cause == gdalmsg.OpenRing:
 		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
 	case strings.Contains(cause, "SHAPE_RESTORE_SHX"):
 		return "; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the missing ones beside it, or export the layer again as a GeoPackage"
@@ -153,11 +153,6 @@ func openVectorError(path string, err error) error {
 	cause := gdalmsg.Cause(err.Error())
 	if hint == "" {
 		hint = vectorAdvice(cause)
-	}
-	if strings.Contains(cause, "Non closed ring") {
-		// GDAL's own advice names no option and would accept the
-		// broken ring: say what is wrong instead.
-		cause = "a polygon's ring does not end at its first point"
 	}
 	if cause == "crs not found" {
 		// A GeoJSON "crs" member naming a CRS PROJ does not know.
@@ -492,7 +487,7 @@ func noGeometry(g *godal.Geometry) bool {
 	if g == nil {
 		return true
 	}
-	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && h.Kind() == reflect.Pointer && h.IsNil() {
+	if h := reflect.ValueOf(g).Elem().FieldByName("handle"); h.IsValid() && (h.Kind() == reflect.Pointer || h.Kind() == reflect.UnsafePointer) && h.IsNil() {
 		return true
 	}
 	return g.Empty()

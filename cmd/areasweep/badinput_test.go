@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: `)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: |` + "`" + `|PROJ: |\bproj_[a-z]|Error \d+ \(|ERROR parsing|XML parsing of|_TIFF|_tiff|[A-Za-z]::[A-Za-z]|Exception: `)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -498,6 +498,21 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
 		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
 		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},
+		// PROJ's words for these reached the user whole (HG's sweep):
+		// "PROJ: proj_create_operations: ..." and "Cannot find coordinate
+		// operations from `ENGCRS[...]' to `EPSG:4326'".
+		{"occurrences crs of Mars", f.run("--occurrences-crs", `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`), 2, []string{"--occurrences-crs", "cannot be transformed to WGS84", "same celestial body", "a CRS of the Earth"}, "", ""},
+		{"occurrences crs a local engineering one", f.run("--occurrences-crs", `LOCAL_CS["arbitrary",UNIT["metre",1]]`), 2, []string{"--occurrences-crs", "PROJ knows no transformation between the two CRSs"}, "", ""},
+		{"occurrences crs an unknown projection", f.run("--occurrences-crs", "+proj=garbage +foo"), 2, []string{"--occurrences-crs", "(Unknown projection)"}, "", ""},
+		// Expat's words for an XML file cut short reached the user with
+		// GDAL's "ERROR parsing kml" and "XML parsing of GML file failed".
+		// libtiff's "Can not read directory count" reached the user.
+		{"model a TIFF cut after 8 bytes", f.withModel(f.file("cut8.tif", "II*\x00\x08\x00\x00\x00")), 2, []string{"cut8.tif", "its TIFF header cannot be read: the file is cut short"}, "", ""},
+		{"region a KML file cut short", f.withRegion(f.file("cut.kml", `<?xml version="1.0" encoding="utf-8" ?>
+<kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark>`)), 2, []string{"cut.kml", "its XML is not valid at line 2", "ends before its elements are closed"}, "", ""},
+		{"region a GML file cut short", f.withRegion(f.file("cut.gml", `<?xml version="1.0" encoding="utf-8" ?>
+<ogr:FeatureCollection xmlns:ogr="http://ogr.maptools.org/" xmlns:gml="http://www.opengis.net/gml">
+<gml:featureMember><ogr:region>`)), 2, []string{"cut.gml", "its XML is not valid at line 3", "ends before its elements are closed"}, "", ""},
 		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},
 		{"no occurrences", []string{"run", "--model", "m=" + f.model, "--region", f.region}, 2, []string{"--occurrences"}, "", ""},
 		{"out empty", append(f.run("--out", ""), "--quiet"), 2, []string{"--out is empty"}, "", filepath.Join(f.outs, "never")},

@@ -133,6 +133,80 @@ var (
 	badJSON       = regexp.MustCompile(`^At line (\d+), character (\d+): (.*)$`)
 )
 
+// More library wordings put in a user's words (each copied from GDAL
+// 3.6.2's output on the file kind named): libtiff's for a header field
+// past the end of a TIFF cut short; the XML parsers' for a KML, GML or
+// VRT file that is not valid XML (Expat's "no element found" is its
+// word for a file that ends inside an element); PROJ's error number and
+// its phrase for two CRSs with no transformation between them (with the
+// CRSs' WKT in backquotes); GDAL's for a GeoPackage of a later version.
+var (
+	tiffTagIO   = regexp.MustCompile(`^(?:(\S.*?): )?IO error during reading of "([^"]+)"; tag ignored.*$`)
+	kmlXML      = regexp.MustCompile(`^ERROR parsing kml .* :\s*(.*?) on line (\d+) at offset \d+$`)
+	gmlXML      = regexp.MustCompile(`^XML parsing of GML file failed : (.*?) at line (\d+), column (\d+)$`)
+	cplXML      = regexp.MustCompile(`^(?:Parse error on line (\d+), |Line (\d+): )((?:reached EOF|Didn't find|Found invalid|Unexpected|Missing).*)$`)
+	projCode    = regexp.MustCompile(`\bError \d+ \([^)]*\):\s*`)
+	noOperation = regexp.MustCompile(`^Cannot find coordinate operations from .*$`)
+	gpkgVersion = regexp.MustCompile(`^This version of GeoPackage (?:user_version|application_id)=\S+ \((\d+), (v[0-9.]+)\) on .* may only be partially supported$`)
+)
+
+// libtiff's and GDAL's words for a TIFF whose header is damaged (each
+// copied from GDAL 3.6.2's output on a GeoTIFF cut at bytes 4 to 200, one
+// with the BigTIFF magic number, one with a tile's offset or size past the
+// file's end, one with SamplesPerPixel set to 0, one with zero width and
+// one with an unknown compression code); the function names of libtiff
+// (_TIFF..., _tiff..., PredictorSetup) and GDAL's C++ methods
+// (Class::Method) that come before them; and the words of GDAL's and
+// GEOS's for a ring that does not close (a KML and a GML file with a
+// broken coordinate).
+var (
+	libraryFuncs  = regexp.MustCompile(`\b_?(?:_TIFF|_tiff)[A-Za-z0-9_]*:\s*|\bPredictorSetup:\s*|\b[A-Z][A-Za-z0-9]*::[A-Za-z0-9_]+:\s*|\b[A-Za-z]+Exception:\s*`)
+	tiffHeader    = regexp.MustCompile(`^.*\b(?:Cannot read header|Can not read directory(?: count)?|_tiffSeekProc:\s*Invalid argument)\.?$`)
+	tiffStrile    = regexp.MustCompile(`^.*Cannot read offset/size for strile around ~(\d+).*$`)
+	tiffBadValue  = regexp.MustCompile(`^(?:.*: )?Bad value (\S+) for "([A-Za-z]+)" tag.*$`)
+	tiffZeroTiles = regexp.MustCompile(`^.*Cannot handle zero number of (?:tiles|strips).*$`)
+	missingCodec  = regexp.MustCompile(`^.*missing codec of code (\d+).*$`)
+	openRing      = regexp.MustCompile(`^.*(?:Non closed ring detected|Points of LinearRing do not form a closed linestring).*$`)
+	onePoint      = regexp.MustCompile(`^.*point array must contain 0 or >1 elements.*$`)
+)
+
+// GeoPackage and SQLite words for a damaged file (each copied from GDAL
+// 3.6.2's output on a GeoPackage cut to a third, and on one whose layer
+// table was dropped, one whose declared geometry type was made POINT
+// for a layer of polygons, and one with a geometry blob of garbage
+// bytes), and libcurl's for a host it cannot find (a GeoJSON
+// "crs" member whose link GDAL tried to fetch).
+var (
+	sqliteMalformed = regexp.MustCompile(`^.*database disk image is malformed.*$`)
+	gpkgNoTable     = regexp.MustCompile(`^Table/view (.*) is referenced in gpkg_contents, but does not exist$`)
+	noHost          = regexp.MustCompile(`^Could not resolve host: (.*)$`)
+	gpkgGeomType    = regexp.MustCompile(`^geometry column type in '([^']*)\.[^.']*' is not consistent with type in gpkg_geometry_columns$`)
+	gpkgBadBlob     = regexp.MustCompile(`^Unable to read geometry$`)
+)
+
+// GDAL's words for a read past the end of a file, with the address of
+// its buffer in hex (copied from GDAL 3.6.2's output on an ERDAS .img
+// file cut in half), and for a band a VRT takes from a source that lacks
+// it (on a VRT whose SourceBand was set to 9 on a one-band source).
+var (
+	vsiReadFailed = regexp.MustCompile(`^.*VSIF\w+\(0x[0-9a-fA-F]+,[^)]*\) @ (\d+) failed.*$`)
+	illegalBand   = regexp.MustCompile(`^(?:(.*): )?GDALDataset::GetRasterBand\((\d+)\) - Illegal band #$`)
+)
+
+// OpenRing is Cause's wording of GDAL's and GEOS's messages for a ring
+// that does not end at its first point.
+const OpenRing = "a polygon's ring does not end at its first point"
+
+// xmlCause words an XML parser's message at line n.
+func xmlCause(n, msg string) string {
+	msg = strings.TrimSuffix(strings.TrimSpace(msg), ".")
+	msg = strings.Replace(msg, "reached EOF", "reached the end of the file", 1)
+	if msg == "no element found" {
+		msg = "the file ends before its elements are closed, as a file cut short does"
+	}
+	return "its XML is not valid at line " + n + ": " + msg
+}
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -148,7 +222,27 @@ func Cause(text string) string {
 			break
 		}
 	}
+	line = vsiReadFailed.ReplaceAllString(line, "its bytes end before byte $1 that its header points to, as in a file cut short")
+	if m := illegalBand.FindStringSubmatch(line); m != nil {
+		line = "it has no band " + m[2]
+		if m[1] != "" {
+			line = m[1] + ": " + line
+		}
+	}
 	line = libraryWords.ReplaceAllString(line, "")
+	line = tiffHeader.ReplaceAllString(line, "its TIFF header cannot be read: the file is cut short, or is no TIFF")
+	line = libraryFuncs.ReplaceAllString(line, "")
+	line = tiffStrile.ReplaceAllString(line, "the place or size of block $1 cannot be read, as in a file cut short")
+	line = tiffBadValue.ReplaceAllString(line, "its header field $2 has the invalid value $1")
+	line = tiffZeroTiles.ReplaceAllString(line, "its header gives a width, height or block size of 0")
+	line = missingCodec.ReplaceAllString(line, "its compression (code $1) is not one GDAL reads")
+	line = openRing.ReplaceAllString(line, OpenRing)
+	line = onePoint.ReplaceAllString(line, "a ring or line of it has a single point")
+	line = sqliteMalformed.ReplaceAllString(line, "the database inside it is damaged, as in a file cut short or copied while it was being written")
+	line = gpkgNoTable.ReplaceAllString(line, "it lists a layer $1 whose table is not in the file")
+	line = gpkgGeomType.ReplaceAllString(line, "the geometries of layer $1 are not of the type its GeoPackage declares for them")
+	line = gpkgBadBlob.ReplaceAllString(line, "a feature's geometry cannot be read: its bytes are damaged")
+	line = noHost.ReplaceAllString(line, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only")
 	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
 		sub := shortRead.FindStringSubmatch(m)
 		block := "the block"
@@ -162,6 +256,26 @@ func Cause(text string) string {
 	line = notGeoPackage.ReplaceAllString(line, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47")
 	line = badJSON.ReplaceAllString(line, "its JSON is not valid at line $1, character $2: $3")
 	line = libtiffWords.Replace(line)
+	if m := tiffTagIO.FindStringSubmatch(line); m != nil {
+		// The file is named: a VRT's source is another file.
+		line = "its header field " + m[2] + " lies past the end of the file, as in a file cut short"
+		if m[1] != "" {
+			line = m[1] + ": " + line
+		}
+	}
+	if m := kmlXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[2], m[1])
+	} else if m := gmlXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[2]+", column "+m[3], m[1])
+	} else if m := cplXML.FindStringSubmatch(line); m != nil {
+		line = xmlCause(m[1]+m[2], m[3])
+	}
+	line = projCode.ReplaceAllString(line, "")
+	line = noOperation.ReplaceAllString(line, "PROJ knows no transformation between the two CRSs")
+	line = gpkgVersion.ReplaceAllString(line, "its GeoPackage version $2 ($1) is later than the ones GDAL reads in full")
+	// Any quotes the library puts around a name of its own are GDAL's
+	// `...' kind; ours are plain.
+	line = strings.ReplaceAll(line, "`", "'")
 	line = strings.Join(strings.Fields(line), " ")
 	line = strings.Trim(line, " :;,.")
 	if line == "" {

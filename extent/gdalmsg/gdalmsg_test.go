@@ -15,7 +15,7 @@ func TestCause(t *testing.T) {
 	for _, c := range []struct{ in, want string }{
 		{"ERROR 1: TIFFFillTile:Read error at row 4294967295, col 0, tile 3; got 0 bytes, expected 1024", "only 0 of the 1024 bytes of tile 3 are in the file"},
 		{"TIFFReadEncodedStrip() failed: Read error at row 64, col 0, strip 17; got 1520 bytes, expected 6164", "failed: only 1520 of the 6164 bytes of strip 17 are in the file"},
-		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "failed: database disk image is malformed"},
+		{"sqlite3_exec(SELECT 1) failed: database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
 		{"Self-intersection at or near point 1 1\nsecond line", "Self-intersection at or near point 1 1"},
 		{"ERROR 10: Pointer 'hGeom' is NULL in 'OGR_G_GetGeometryType'.", "the library reported an error"},
 		{"  ", "the library reported an error"},
@@ -26,6 +26,63 @@ func TestCause(t *testing.T) {
 		// (GDAL 3.6's and its JSON parser's words).
 		{"GPKG: bad application_id=0x00000000 on 'empty.gpkg'", "an SQLite database but not a GeoPackage: its application id is 0x00000000, a GeoPackage's is 0x47504B47"},
 		{"At line 1, character 41: Unterminated array", "its JSON is not valid at line 1, character 41: Unterminated array"},
+		// Copied from GDAL 3.6.2's output on a GeoTIFF cut at byte 400
+		// (the libtiff function name in it is removed as before).
+		{"trunc400.tif: TIFFFetchNormalTag:IO error during reading of \"GeoPixelScale\"; tag ignored", "trunc400.tif: its header field GeoPixelScale lies past the end of the file, as in a file cut short"},
+		// Copied from GDAL 3.6.2's output on a KML file cut short, a GML
+		// file cut short and VRT files cut short or with a broken
+		// attribute (the last two are GDAL's own XML parser's).
+		{"ERROR parsing kml /tmp/hG/cases/kml_trunc.kml :no element found on line 8 at offset 716", "its XML is not valid at line 8: the file ends before its elements are closed, as a file cut short does"},
+		{"XML parsing of GML file failed : no element found at line 13, column 475", "its XML is not valid at line 13, column 475: the file ends before its elements are closed, as a file cut short does"},
+		{"XML parsing of GML file failed : mismatched tag at line 4, column 2", "its XML is not valid at line 4, column 2: mismatched tag"},
+		{"Parse error on line 7, reached EOF before closing quote.", "its XML is not valid at line 7: reached the end of the file before closing quote"},
+		{"IO error during reading of \"GDALNoDataValue\"; tag ignored", "its header field GDALNoDataValue lies past the end of the file, as in a file cut short"},
+		{"Line 7: Didn't find expected attribute value.", "its XML is not valid at line 7: Didn't find expected attribute value"},
+		// Copied from GDAL 3.6.2's output for --occurrences-crs
+		// "+proj=garbage +foo", a local engineering CRS and a Mars CRS
+		// (PROJ's).
+		{"Error 1027 (Invalid value for an argument): Unknown projection", "Unknown projection"},
+		{"Cannot find coordinate operations from `ENGCRS[\"arbitrary\",EDATUM[\"\"],CS[Cartesian,2]]' to `EPSG:4326'", "PROJ knows no transformation between the two CRSs"},
+		{"PROJ: proj_create_operations: Source and target ellipsoid do not belong to the same celestial body", "Source and target ellipsoid do not belong to the same celestial body"},
+		// Copied from GDAL 3.6.2's output on a GeoPackage whose
+		// user_version was set to 99999.
+		{"This version of GeoPackage user_version=0x0001869F (99999, v9.99.99) on '/tmp/hG/cases/gpkg_userversion.gpkg' may only be partially supported", "its GeoPackage version v9.99.99 (99999) is later than the ones GDAL reads in full"},
+		{"a name in `quotes'", "a name in 'quotes'"},
+		// Copied from GDAL 3.6.2's output on damaged GeoTIFFs: cut at
+		// byte 4 and at byte 8, with the BigTIFF magic number in a classic
+		// TIFF, with a tile's offset past the end, SamplesPerPixel 0, width
+		// 0, compression code 34999, Predictor 9; and on a VRT whose pixel
+		// function is unknown.
+		{"/d/trunc4.tif: /d/trunc4.tif:Cannot read header", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"/d/trunc8.tif: /d/trunc8.tif: Can not read directory count", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"/d/bigtiff_magic.tif: _tiffSeekProc:Invalid argument", "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{"open: Invalid argument", "open: Invalid argument"},
+		{"_TIFFPartialReadStripArray:Cannot read offset/size for strile around ~1", "the place or size of block 1 cannot be read, as in a file cut short"},
+		{"/d/spp0.tif: _TIFFVSetField:/d/spp0.tif: Bad value 0 for \"SamplesPerPixel\" tag", "its header field SamplesPerPixel has the invalid value 0"},
+		{"/d/zerowidth.tif: Cannot handle zero number of tiles", "its header gives a width, height or block size of 0"},
+		{"/d/unknowncompr.tif: Cannot open file due to missing codec of code 34999", "its compression (code 34999) is not one GDAL reads"},
+		{"PredictorSetup:\"Predictor\" value 9 not supported", "\"Predictor\" value 9 not supported"},
+		{"VRTDerivedRasterBand::IRasterIO:Derived band pixel function 'nonexistentfn' not registered", "Derived band pixel function 'nonexistentfn' not registered"},
+		// Copied from GDAL 3.6.2's output on a GeoPackage cut to a third,
+		// one whose layer table was dropped, one declaring POINT for its
+		// polygons, one with a garbage geometry blob, and a GeoJSON file whose
+		// "crs" member links to the host x.
+		{"database disk image is malformed", "the database inside it is damaged, as in a file cut short or copied while it was being written"},
+		{"Table/view region is referenced in gpkg_contents, but does not exist", "it lists a layer region whose table is not in the file"},
+		{"geometry column type in 'region.geom' is not consistent with type in gpkg_geometry_columns", "the geometries of layer region are not of the type its GeoPackage declares for them"},
+		{"Unable to read geometry", "a feature's geometry cannot be read: its bytes are damaged"},
+		{"Could not resolve host: x", "it names a web address on the host x, which cannot be reached: areasweep reads local files only"},
+		// Copied from GDAL 3.6.2's output on an ERDAS .img file cut in
+		// half and on a VRT whose source band is 9 of a one-band file.
+		{"VSIFReadL(0x27d6a540,6*4) @ 332087 failed in HFAEntry()", "its bytes end before byte 332087 that its header points to, as in a file cut short"},
+		{"/d/model_good.tif: GDALDataset::GetRasterBand(9) - Illegal band #", "/d/model_good.tif: it has no band 9"},
+		// Copied from GDAL 3.6.2's output on a KML and a GML file whose
+		// first coordinate was made text (GDAL's words, then GEOS's).
+		{"Non closed ring detected. To avoid accepting it, set the OGR_GEOMETRY_ACCEPT_UNCLOSED_RING configuration option to NO", OpenRing},
+		{"GEOSUnaryUnion_r: IllegalArgumentException: Points of LinearRing do not form a closed linestring", OpenRing},
+		// Copied from GDAL 3.6.2's output on a GeoJSON ecoregion layer
+		// whose second unit's ring was made [[1,2]] (GEOS's words).
+		{"IllegalArgumentException: point array must contain 0 or >1 elements", "a ring or line of it has a single point"},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {

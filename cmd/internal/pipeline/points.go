@@ -298,7 +298,8 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
 		if !sr.IsSame(wgs) {
 			if toLL, err = godal.NewTransform(sr, wgs); err != nil {
-				return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84: %w", o.OccurrencesCRS, err))
+				return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q cannot be transformed to WGS84 longitudes and latitudes (%s); areasweep places the occurrences on the Earth: give the CRS the coordinates are in, a CRS of the Earth with a known datum",
+					o.OccurrencesCRS, gdalmsg.Cause(err.Error())))
 			}
 			defer toLL.Close()
 		}
