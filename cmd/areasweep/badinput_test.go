@@ -21,7 +21,7 @@ import (
 
 // forbidden are words that must never reach a user's terminal: Go crash
 // output and the raw prefixes of GDAL, libtiff, SQLite and GEOS messages.
-var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: |` + "`" + `|PROJ: |\bproj_[a-z]|Error \d+ \(|ERROR parsing|XML parsing of|_TIFF|_tiff|[A-Za-z]::[A-Za-z]|Exception: `)
+var forbidden = regexp.MustCompile(`panic|goroutine|SIGSEGV|runtime error|ERROR \d+:|Warning \d+:|\bTIFF[A-Z][A-Za-z]+|sqlite|GEOS|\bGDAL: |nil pointer|ogr error|strconv\.|\bjson: |` + "`" + `|PROJ: |\bproj_[a-z]|Error \d+ \(|ERROR parsing|XML parsing of|_TIFF|_tiff|[A-Za-z]::[A-Za-z]|Exception: |HDF5-DIAG`)
 
 // badFixture holds the good inputs of the small study plus the bad ones
 // each case writes, and a separate folder for outputs.
@@ -513,6 +513,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region a GML file cut short", f.withRegion(f.file("cut.gml", `<?xml version="1.0" encoding="utf-8" ?>
 <ogr:FeatureCollection xmlns:ogr="http://ogr.maptools.org/" xmlns:gml="http://www.opengis.net/gml">
 <gml:featureMember><ogr:region>`)), 2, []string{"cut.gml", "its XML is not valid at line 3", "ends before its elements are closed"}, "", ""},
+		// The HDF5 library printed its whole error stack ("HDF5-DIAG:
+		// Error detected in HDF5 ...") on the terminal for a damaged HDF5
+		// file, past GDAL's error handler (HG's sweep).
+		{"model a damaged HDF5 file", f.withModel(f.file("cut.h5", "\x89HDF\r\n\x1a\n"+strings.Repeat("\x00", 600))), 2, []string{"cut.h5", "begins as an HDF5 file", "no GDAL driver reads it"}, "", ""},
+		{"region a damaged HDF5 file", f.withRegion(f.file("cut2.h5", "\x89HDF\r\n\x1a\n"+strings.Repeat("\x00", 600))), 2, []string{"region: ", "cut2.h5", "no GDAL driver reads it", "GeoPackage"}, "", ""},
 		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},
 		{"no occurrences", []string{"run", "--model", "m=" + f.model, "--region", f.region}, 2, []string{"--occurrences"}, "", ""},
 		{"out empty", append(f.run("--out", ""), "--quiet"), 2, []string{"--out is empty"}, "", filepath.Join(f.outs, "never")},

@@ -39,11 +39,17 @@ func (s *Study) checkFiles() error {
 		if err := mustExist("model "+name, path); err != nil {
 			return err
 		}
+		if err := checkHDF5("model "+name, path, true); err != nil {
+			return err
+		}
 		s.models = append(s.models, namedPath{Name: name, Path: path})
 	}
 	for _, m := range o.Nulls {
 		name, path, _ := inputs.ParseNamedPath(m)
 		if err := mustExist("null "+name, path); err != nil {
+			return err
+		}
+		if err := checkHDF5("null "+name, path, true); err != nil {
 			return err
 		}
 		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
@@ -53,11 +59,19 @@ func (s *Study) checkFiles() error {
 			if err := mustExist(p.what, p.path); err != nil {
 				return err
 			}
+			if p.what != "occurrences" {
+				if err := checkHDF5(p.what, p.path, false); err != nil {
+					return err
+				}
+			}
 		}
 	}
 	for _, m := range o.Extra {
 		name, path, _ := inputs.ParseNamedPath(m)
 		if err := mustExist("extra extent "+name, path); err != nil {
+			return err
+		}
+		if err := checkHDF5("extra extent "+name, path, false); err != nil {
 			return err
 		}
 	}
@@ -262,6 +276,20 @@ func mustExist(what, path string) error {
 	}
 	if st.Mode().IsRegular() && st.Size() == 0 && what != "occurrences" { // the table reader says what an empty table needs
 		return fault.BadInput(fmt.Errorf("%s: %s is empty (0 bytes); it was probably cut off while being written, copied or downloaded: give the complete file", what, path))
+	}
+	return nil
+}
+
+// checkHDF5 refuses a damaged HDF5 file before GDAL's drivers are tried
+// on it (extent.CheckHDF5: the HDF5 library would print its error stack
+// on the terminal).
+func checkHDF5(what, path string, raster bool) error {
+	if err := extent.CheckHDF5(path, raster); err != nil {
+		give := "a GeoTIFF (or another raster GDAL reads) and check that it opens in a GIS"
+		if !raster {
+			give = "a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons"
+		}
+		return fault.BadInput(fmt.Errorf("%s: %s: %s; give %s", what, path, err, give))
 	}
 	return nil
 }
