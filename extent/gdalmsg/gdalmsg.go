@@ -207,6 +207,55 @@ func xmlCause(n, msg string) string {
 	return "its XML is not valid at line " + n + ": " + msg
 }
 
+// rewording replaces every match of re by with (regexp.ReplaceAllString:
+// $1 is the first group).
+type rewording struct {
+	re   *regexp.Regexp
+	with string
+}
+
+// reword applies rules to line in order.
+func reword(line string, rules []rewording) string {
+	for _, r := range rules {
+		line = r.re.ReplaceAllString(line, r.with)
+	}
+	return line
+}
+
+// The rewordings of Cause, in the order they apply: library and function
+// names first, then each message in our words (before the short reads),
+// the codecs' and formats' (after them), and PROJ's and GeoPackage
+// versions' last (after the XML parsers').
+var (
+	firstRewordings = []rewording{
+		{libraryWords, ""},
+		{tiffHeader, "its TIFF header cannot be read: the file is cut short, or is no TIFF"},
+		{libraryFuncs, ""},
+		{tiffStrile, "the place or size of block $1 cannot be read, as in a file cut short"},
+		{tiffBadValue, "its header field $2 has the invalid value $1"},
+		{tiffZeroTiles, "its header gives a width, height or block size of 0"},
+		{missingCodec, "its compression (code $1) is not one GDAL reads"},
+		{openRing, OpenRing},
+		{onePoint, "a ring or line of it has a single point"},
+		{sqliteMalformed, "the database inside it is damaged, as in a file cut short or copied while it was being written"},
+		{gpkgNoTable, "it lists a layer $1 whose table is not in the file"},
+		{gpkgGeomType, "the geometries of layer $1 are not of the type its GeoPackage declares for them"},
+		{gpkgBadBlob, "a feature's geometry cannot be read: its bytes are damaged"},
+		{noHost, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only"},
+	}
+	formatRewordings = []rewording{
+		{decodeError, "its compressed data cannot be decoded"},
+		{unknownFormat, UnknownFormat},
+		{notGeoPackage, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47"},
+		{badJSON, "its JSON is not valid at line $1, character $2: $3"},
+	}
+	lastRewordings = []rewording{
+		{projCode, ""},
+		{noOperation, "PROJ knows no transformation between the two CRSs"},
+		{gpkgVersion, "its GeoPackage version $2 ($1) is later than the ones GDAL reads in full"},
+	}
+)
+
 // maxCause bounds the length of a cause line.
 const maxCause = 240
 
@@ -229,20 +278,7 @@ func Cause(text string) string {
 			line = m[1] + ": " + line
 		}
 	}
-	line = libraryWords.ReplaceAllString(line, "")
-	line = tiffHeader.ReplaceAllString(line, "its TIFF header cannot be read: the file is cut short, or is no TIFF")
-	line = libraryFuncs.ReplaceAllString(line, "")
-	line = tiffStrile.ReplaceAllString(line, "the place or size of block $1 cannot be read, as in a file cut short")
-	line = tiffBadValue.ReplaceAllString(line, "its header field $2 has the invalid value $1")
-	line = tiffZeroTiles.ReplaceAllString(line, "its header gives a width, height or block size of 0")
-	line = missingCodec.ReplaceAllString(line, "its compression (code $1) is not one GDAL reads")
-	line = openRing.ReplaceAllString(line, OpenRing)
-	line = onePoint.ReplaceAllString(line, "a ring or line of it has a single point")
-	line = sqliteMalformed.ReplaceAllString(line, "the database inside it is damaged, as in a file cut short or copied while it was being written")
-	line = gpkgNoTable.ReplaceAllString(line, "it lists a layer $1 whose table is not in the file")
-	line = gpkgGeomType.ReplaceAllString(line, "the geometries of layer $1 are not of the type its GeoPackage declares for them")
-	line = gpkgBadBlob.ReplaceAllString(line, "a feature's geometry cannot be read: its bytes are damaged")
-	line = noHost.ReplaceAllString(line, "it names a web address on the host $1, which cannot be reached: areasweep reads local files only")
+	line = reword(line, firstRewordings)
 	line = shortRead.ReplaceAllStringFunc(line, func(m string) string {
 		sub := shortRead.FindStringSubmatch(m)
 		block := "the block"
@@ -251,10 +287,7 @@ func Cause(text string) string {
 		}
 		return fmt.Sprintf("only %s of the %s bytes of %s are in the file", sub[3], sub[4], block)
 	})
-	line = decodeError.ReplaceAllString(line, "its compressed data cannot be decoded")
-	line = unknownFormat.ReplaceAllString(line, UnknownFormat)
-	line = notGeoPackage.ReplaceAllString(line, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47")
-	line = badJSON.ReplaceAllString(line, "its JSON is not valid at line $1, character $2: $3")
+	line = reword(line, formatRewordings)
 	line = libtiffWords.Replace(line)
 	if m := tiffTagIO.FindStringSubmatch(line); m != nil {
 		// The file is named: a VRT's source is another file.
@@ -270,9 +303,7 @@ func Cause(text string) string {
 	} else if m := cplXML.FindStringSubmatch(line); m != nil {
 		line = xmlCause(m[1]+m[2], m[3])
 	}
-	line = projCode.ReplaceAllString(line, "")
-	line = noOperation.ReplaceAllString(line, "PROJ knows no transformation between the two CRSs")
-	line = gpkgVersion.ReplaceAllString(line, "its GeoPackage version $2 ($1) is later than the ones GDAL reads in full")
+	line = reword(line, lastRewordings)
 	// Any quotes the library puts around a name of its own are GDAL's
 	// `...' kind; ours are plain.
 	line = strings.ReplaceAll(line, "`", "'")
