@@ -331,6 +331,40 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	}
 	alphaModel := masked("alpha.tif", true)
 	maskModel := masked("masked.tif", false)
+	// A null whose first tile cannot be decoded (its deflate stream
+	// overwritten in the middle): the message names the null as a null.
+	damagedNull := func() string {
+		src, err := godal.Open(f.model)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(f.dir, "damagednull.tif")
+		ds, err := src.Translate(p, []string{"-co", "TILED=YES", "-co", "BLOCKXSIZE=16", "-co", "BLOCKYSIZE=16", "-co", "COMPRESS=DEFLATE"})
+		src.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		off, size := ds.Bands()[0].Metadata("BLOCK_OFFSET_0_0", godal.Domain("TIFF")), ds.Bands()[0].Metadata("BLOCK_SIZE_0_0", godal.Domain("TIFF"))
+		ds.Close()
+		var o, n int
+		if _, err := fmt.Sscan(off, &o); err != nil {
+			t.Fatalf("block offset %q: %v", off, err)
+		}
+		if _, err := fmt.Sscan(size, &n); err != nil || n < 8 {
+			t.Fatalf("block size %q: %v", size, err)
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := o + 2; i < o+n-4; i++ {
+			b[i] ^= 0x5a
+		}
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}()
 
 	// Vector layers.
 	pointLayer := f.file("point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, ``))
@@ -578,15 +612,16 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model with nodata in an .aux.xml only", f.withModel(auxNoData), 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0", "never reads .aux.xml", "gdal_translate " + auxNoData}, "", ""},
 		{"model whose .aux.xml begins with an XML declaration", f.withModel(auxDeclared), 2, []string{"model m", "auxdecl.tif.aux.xml", "the nodata value 0", "remove its first line", "gdal_translate " + auxDeclared}, "", ""},
 		// A null is named "model NAME" as in its other grid and data errors.
-		{"null with nodata in an .aux.xml only", f.run("--null", "n="+auxNoData), 2, []string{"model n", "auxnodata.tif.aux.xml", "the nodata value 0"}, "", ""},
+		{"null with nodata in an .aux.xml only", f.run("--null", "n="+auxNoData), 2, []string{"null n", "auxnodata.tif.aux.xml", "the nodata value 0"}, "", ""},
 		{"extents: model with nodata in an .aux.xml only", []string{"extents", "--model", "m=" + auxNoData, "--occurrences", f.occ, "--region", f.region}, 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0"}, "", ""},
 		{"model rotated", f.withModel(rotated), 2, []string{"rotated.tif", "rotated"}, "", ""},
 		{"model undefined CRS", f.withModel(local), 2, []string{"local.tif", "undefined"}, "", ""},
 		{"model all no data", f.withModel(allNoData), 2, []string{"allnodata.tif", "every cell", "no data"}, "", ""},
 		// A later pass finds it itself (no range read before the pass).
-		{"null all no data", f.run("--null", "n="+allNoData), 2, []string{"model n", "allnodata.tif", "every cell", "no data"}, "", ""},
+		{"null all no data", f.run("--null", "n="+allNoData), 2, []string{"null n", "allnodata.tif", "every cell", "no data"}, "", ""},
+		{"null with a tile that cannot be decoded", f.run("--null", "n="+damagedNull), 2, []string{"null n", "damagednull.tif", "the block at column 0 row 0 cannot be read"}, "", ""},
 		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
-		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"model n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
+		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"null n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
 		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 

@@ -300,13 +300,13 @@ func (s *Study) useShards(merged *shardfile.Merged) error {
 			return nil, fault.Internal(fmt.Errorf("the shards hold no pass of %s", p.Model.Name))
 		}
 		if mp.Layout.Fingerprint() != p.Layout.Fingerprint() {
-			return nil, fault.Internal(fmt.Errorf("model %s: the layout made from the inputs differs from the shards'", p.Model.Name))
+			return nil, fault.Internal(fmt.Errorf("%s: the layout made from the inputs differs from the shards'", modelWho(p.Model)))
 		}
 		sums := &Sums{Stats: mp.Stats}
 		for _, a := range mp.Accs {
 			b, err := shardfile.Rebase(a, p.Layout)
 			if err != nil {
-				return nil, fault.Internal(fmt.Errorf("model %s: %w", p.Model.Name, err))
+				return nil, fault.Internal(fmt.Errorf("%s: %w", modelWho(p.Model), err))
 			}
 			sums.Accs = append(sums.Accs, b)
 		}

@@ -52,23 +52,23 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 	if !sums.Stats.AnyValid && p.Model.NullKind != report.NullDistance {
 		// Found by the pass itself (in a merge, by every shard's rows
 		// together): no read before the pass looks for it.
-		return fault.BadInput(fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", p.Model.Name, pass.ErrNoData, p.Model.Path))
+		return fault.BadInput(fmt.Errorf("%s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", modelWho(p.Model), pass.ErrNoData, p.Model.Path))
 	}
 	if st := sums.Stats; st.Area > 0 && math.IsInf(st.Max-st.Min, 0) {
 		// Each value is finite, but no number holds their range: the
 		// report's axes and colour bars are drawn over it.
-		return fault.BadInput(fmt.Errorf("model %s: the values of %s run from %g to %g, whose difference is beyond the largest number a float64 holds; divide the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/1e300\") and give that file",
-			p.Model.Name, p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
+		return fault.BadInput(fmt.Errorf("%s: the values of %s run from %g to %g, whose difference is beyond the largest number a float64 holds; divide the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/1e300\") and give that file",
+			modelWho(p.Model), p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
-		s.warn(fmt.Sprintf("model %s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so it is not scored on any extent (every cell ties with every test point): check that this is the file you meant", p.Model.Name, st.Min))
+		s.warn(fmt.Sprintf("%s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so it is not scored on any extent (every cell ties with every test point): check that this is the file you meant", modelWho(p.Model), st.Min))
 	} else if r, ok := p.src.(*pass.Raster); ok && st.Area > 0 && noDataMarker(st.Min) {
 		declared := "declares no nodata value"
 		if nd, has := r.NoData(); has {
 			declared = fmt.Sprintf("declares the nodata value %g", nd)
 		}
-		s.warn(fmt.Sprintf("model %s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
-			p.Model.Name, p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
+		s.warn(fmt.Sprintf("%s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
+			modelWho(p.Model), p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 	}
 	if sums.Valid != nil {
 		// The extents are final only once the first model has been read.
@@ -186,7 +186,7 @@ func (s *Study) planModel(i int, m namedPath) (*Plan, error) {
 	} else {
 		var err error
 		if r, err = pass.Open(m.Path); err != nil {
-			return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+			return nil, fault.BadInput(fmt.Errorf("%s: %w", m.who(), err))
 		}
 		if s.streams {
 			r.KeepBlocks(keptBlockBytes, s.rows)
@@ -212,7 +212,7 @@ func (s *Study) layout(p *Plan, opts ...metrics.LayoutOption) error {
 		// Read when the points were placed.
 		vals, valid = slices.Clone(s.firstVals), slices.Clone(s.firstValid)
 	} else if vals, valid, err = p.src.Sample(s.grid, s.cell); err != nil {
-		return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+		return fault.BadInput(fmt.Errorf("%s: %w", modelWho(m), err))
 	}
 	p.vals, p.valid = vals, valid
 	var layoutVals []float64
@@ -228,12 +228,12 @@ func (s *Study) layout(p *Plan, opts ...metrics.LayoutOption) error {
 		layoutVals = append(layoutVals, vals[k])
 	}
 	if len(missing) > 0 {
-		s.warn(fmt.Sprintf("model %s has no data at %d scored point(s), which it is not scored on: %s", m.Name, len(missing), listSome(missing, 10)))
+		s.warn(fmt.Sprintf("%s has no data at %d scored point(s), which it is not scored on: %s", modelWho(m), len(missing), listSome(missing, 10)))
 	}
 	layoutVals = append(layoutVals, s.o.Thresholds...)
 	p.Layout, err = metrics.NewLayout(layoutVals, histBins, opts...)
 	if err != nil {
-		return fault.Internal(fmt.Errorf("model %s: %w", m.Name, err))
+		return fault.Internal(fmt.Errorf("%s: %w", modelWho(m), err))
 	}
 	return nil
 }
@@ -257,7 +257,7 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 		if errors.As(err, &ie) {
 			return nil, fault.Internal(err)
 		}
-		return nil, fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+		return nil, fault.BadInput(fmt.Errorf("%s: %w", modelWho(m), err))
 	}
 	how := "read once"
 	if m.NullKind == report.NullDistance {

@@ -344,6 +344,21 @@ type namedPath struct {
 	Null       bool
 }
 
+// who names m in messages: "model NAME", or "null NAME" for a raster the
+// user gave with --null.
+func (m namedPath) who() string { return roleName(m.Null, m.Name) }
+
+// roleName is "model NAME", or "null NAME" when null.
+func roleName(null bool, name string) string {
+	if null {
+		return "null " + name
+	}
+	return "model " + name
+}
+
+// modelWho names a pass's model in messages, as namedPath.who does.
+func modelWho(m report.Model) string { return roleName(m.IsNull(), m.Name) }
+
 // logf writes a line to the run log and, unless quiet, to stderr.
 func (s *Study) logf(format string, args ...any) {
 	line := fmt.Sprintf(format, args...)

@@ -100,8 +100,8 @@ func (s *Study) openGrid() error {
 				own := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.vrt"
 				vrt = fmt.Sprintf("; if the copy gets an .aux.xml of its own (a GeoTIFF cannot hold every CRS), make a virtual raster instead, which holds any CRS and reads the cells from %s (gdal_translate -of VRT %s %s), and give %s", m.Path, shellArg(m.Path), shellArg(own), own)
 			}
-			return fault.BadInput(fmt.Errorf("model %s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
-				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s%s", m.Name, m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out, vrt))
+			return fault.BadInput(fmt.Errorf("%s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
+				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s%s", m.who(), m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out, vrt))
 		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
@@ -112,27 +112,27 @@ func (s *Study) openGrid() error {
 				if ext == ".asc" {
 					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
 				}
-				return fault.BadInput(fmt.Errorf("model %s: %s has no coordinate reference system; %s", m.Name, m.Path, hint))
+				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; %s", m.who(), m.Path, hint))
 			}
 			if v, verr := godal.Open(m.Path, godal.VectorOnly()); verr == nil {
 				v.Close()
-				return fault.BadInput(fmt.Errorf("model %s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the model's raster (GeoTIFF or any raster GDAL reads)", m.Name, m.Path))
+				return fault.BadInput(fmt.Errorf("%s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the raster itself (GeoTIFF or any raster GDAL reads)", m.who(), m.Path))
 			}
-			return fault.BadInput(fmt.Errorf("model %s: %w", m.Name, err))
+			return fault.BadInput(fmt.Errorf("%s: %w", m.who(), err))
 		}
 		msg, band, nBands := maskProblem(m.Path)
 		if band != "" {
 			g.Close()
-			return fault.BadInput(fmt.Errorf("model %s: %s %s", m.Name, m.Path, band))
+			return fault.BadInput(fmt.Errorf("%s: %s %s", m.who(), m.Path, band))
 		}
 		if msg != "" {
 			g.Close()
-			return fault.BadInput(fmt.Errorf("model %s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
-				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.Name, m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
+			return fault.BadInput(fmt.Errorf("%s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
+				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.who(), m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
 		}
 		if nBands > 1 {
 			stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
-			s.warn(fmt.Sprintf("model %s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s, and give that file)", m.Name, m.Path, nBands, shellArg(m.Path), shellArg(stem+"_b2.tif")))
+			s.warn(fmt.Sprintf("%s: %s has %d bands; only the first is scored (to score another, extract it, e.g. gdal_translate -b 2 %s %s, and give that file)", m.who(), m.Path, nBands, shellArg(m.Path), shellArg(stem+"_b2.tif")))
 		}
 		if i == 0 {
 			s.grid = g
@@ -141,8 +141,8 @@ func (s *Study) openGrid() error {
 					m.Path, shortText(g.CRS, 40), m.Path))
 			}
 			if g.DatumShiftM >= 1 {
-				s.warn(fmt.Sprintf("model %s: %s is in latitude and longitude on another datum than WGS84 (%s); areasweep reads them as WGS84's, so the occurrences lie about %.0f m (%.2g of a cell side) from where that datum puts them: if that matters at this resolution, warp the raster to WGS84 (e.g. gdalwarp -t_srs EPSG:4326 %s %s)",
-					m.Name, m.Path, shortText(g.CRS, 40), g.DatumShiftM, g.DatumShiftM/g.MinCellSideM(), shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_wgs84.tif")))
+				s.warn(fmt.Sprintf("%s: %s is in latitude and longitude on another datum than WGS84 (%s); areasweep reads them as WGS84's, so the occurrences lie about %.0f m (%.2g of a cell side) from where that datum puts them: if that matters at this resolution, warp the raster to WGS84 (e.g. gdalwarp -t_srs EPSG:4326 %s %s)",
+					m.who(), m.Path, shortText(g.CRS, 40), g.DatumShiftM, g.DatumShiftM/g.MinCellSideM(), shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_wgs84.tif")))
 			}
 			continue
 		}
