@@ -304,6 +304,12 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		*warns = append(*warns, fmt.Sprintf("%s features %s have no geometry; skipped", s.path, featureList(empty)))
 	}
 	if len(order) == 0 {
+		if len(empty) > 0 {
+			// Every feature read came without a geometry: empty ones, or
+			// geometries GDAL could not decode (it hands those over as
+			// none). The warning above would otherwise be the only clue.
+			return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon to use: none of its %d feature(s) has a geometry GDAL can read (each is empty or cannot be decoded); open the file in a GIS, check or redraw the polygons, and export them again", s.path, s.layer.Name(), len(empty))
+		}
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil

@@ -373,6 +373,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	mixedCollection := f.file("collection.geojson", polygonJSON(`{"type":"GeometryCollection","geometries":[`+squareGeom+`,{"type":"Point","coordinates":[14,43]}]}`, ``))
 	beyondPole := f.file("pole.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[14,43],[16,43],[16,99],[14,43]]]}`, ``))
 	emptyLayer := f.file("empty.geojson", `{"type":"FeatureCollection","features":[]}`)
+	noGeometries := f.file("nogeometries.geojson", `{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":null},{"type":"Feature","properties":{},"geometry":null}]}`)
 	notVector := f.file("notvector.gpkg", "plain text\n")
 	antimeridian := f.file("antimeridian.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[170,41],[-170,41],[-170,46],[170,46],[170,41]]]}`, ``))
 	ecoNull := f.file("eco_null.geojson", `{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"unit":"a"},"geometry":`+squareGeom+`},{"type":"Feature","properties":{"unit":null},"geometry":{"type":"Polygon","coordinates":[[[18.5,41.5],[21,41.5],[21,46.5],[18.5,46.5],[18.5,41.5]]]}}]}`)
@@ -637,6 +638,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"ecoregions error names the input", f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone"), 2, []string{"ecoregions: ", `no field "zone"`}, "", ""},
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
 		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
+		{"region whose features all lack a geometry", f.withRegion(noGeometries), 2, []string{"nogeometries.geojson", "none of its 2 feature(s) has a geometry GDAL can read", "export them again"}, "", ""},
 		{"region point", f.withRegion(pointLayer), 2, []string{"point.geojson feature 1", "point"}, "", ""},
 		{"region line", f.withRegion(lineLayer), 2, []string{"line.geojson feature 1", "linestring"}, "", ""},
 		{"region degenerate polygon", f.withRegion(degenerate), 2, []string{"degenerate.geojson feature 1", "degenerate"}, "", ""},
