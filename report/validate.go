@@ -33,7 +33,8 @@ const MaxPreviewSide = 4096
 //   - paired records have a known kind and method, counts >= 0 (at most
 //     resamples not formed), finite values and a non-negative SE;
 //   - points have a known role and status, finite coordinates and a cell
-//     of the grid (row and col -1 for a point outside the raster);
+//     of the grid (row and col -1 for a point outside the raster), and
+//     point_counts counts them;
 //   - the preview's size and encoded lengths match.
 func Validate(r *Results) error {
 	return validate("results.json", r)
@@ -54,6 +55,7 @@ func validate(file string, r *Results) error {
 	v.curves(r.Curves)
 	v.omissions(r.Omissions)
 	v.points(r.Points, r.Grid)
+	v.pointCounts(r.PointCounts, r.Points)
 	if r.Preview != nil {
 		v.preview(r.Preview, len(r.Extents))
 	}
@@ -255,6 +257,42 @@ func (v *validator) points(ps []Point, g Grid) {
 			v.fail(at, "row %d, col %d is not a cell of the %dx%d grid", p.Row, p.Col, g.Width, g.Height)
 		}
 		v.nonNeg(at+".nearest_train_km", p.NearestTrainKm)
+	}
+}
+
+// pointCounts checks that point_counts counts the points by status (and
+// the scored ones by role), as a run writes them: a points list emptied
+// or cut by hand would otherwise drop the points from the maps and the
+// check of test points near training points (and its warning) without a
+// word.
+func (v *validator) pointCounts(pc PointCounts, ps []Point) {
+	var n PointCounts
+	for _, p := range ps {
+		switch p.Status {
+		case vocab.PointScored:
+			if p.Role == vocab.RoleTrain {
+				n.Train++
+			} else {
+				n.Test++
+			}
+		case vocab.PointThinned:
+			n.Thinned++
+		case vocab.PointOutsideRaster:
+			n.OutsideRaster++
+		case vocab.PointNoData:
+			n.NoData++
+		}
+	}
+	for _, c := range []struct {
+		name, what string
+		want, got  int
+	}{{"train", "scored training points", pc.Train, n.Train}, {"test", "scored test points", pc.Test, n.Test},
+		{"thinned", "thinned points", pc.Thinned, n.Thinned}, {"outside_raster", "points outside the raster", pc.OutsideRaster, n.OutsideRaster},
+		{"nodata", "points on no-data cells", pc.NoData, n.NoData}} {
+		if c.want != c.got {
+			v.fail("point_counts."+c.name, "%d, but points lists %d %s; a run counts every point it lists", c.want, c.got, c.what)
+			return
+		}
 	}
 }
 
