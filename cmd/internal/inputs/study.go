@@ -212,11 +212,10 @@ func syntaxError(name string, err error) error {
 		near = " near line " + m[1]
 	}
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
-	msg = yamlLineRE.ReplaceAllString(msg, "")
-	msg = strings.Trim(msg, " :")
-	return &StudyError{File: name, Err: fmt.Errorf("%w: %s%s; write one setting per line as key: value, "+
+	msg = yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
+	return &StudyError{File: name, Err: fmt.Errorf("%w%s: %s; write one setting per line as key: value, "+
 		"indent with spaces (not tabs), and quote values that contain ': ' or start with a special character",
-		ErrStudySyntax, msg, near)}
+		ErrStudySyntax, near, msg)}
 }
 
 func deref(n *yaml.Node) *yaml.Node {
