@@ -79,8 +79,13 @@ func LoadStudy(path string) (*Study, error) {
 		return nil, err
 	}
 	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist; check the path (a relative one is taken from the current folder)", path), err}
+	case errors.Is(err, os.ErrPermission):
+		return nil, &worded{fmt.Sprintf("inputs: study file %s cannot be read (permission denied); check its permissions", path), err}
+	case err != nil:
+		return nil, fmt.Errorf("inputs: cannot read study file %s: %w", path, err)
 	}
 	defer f.Close()
 	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes, 0))
@@ -170,6 +175,9 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 			return nil, serr(k.Line, key, fmt.Errorf("%w: already given at line %d; keep only one of the two", ErrDuplicateKey, first))
 		}
 		seen[key] = k.Line
+		if flagOnly[key] {
+			return nil, serr(k.Line, key, fmt.Errorf("%w: --%s is given on the command line only (--study, --force, --quiet, --workers and --shard cannot be set in a study file): remove the line, and add --%s to the command if you meant it", ErrUnknownKey, key, key))
+		}
 		if !contains(studyKeys, key) {
 			hint := ""
 			if s := closestKey(key); s != "" {
@@ -191,6 +199,19 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 	}
 	return st, nil
 }
+
+// flagOnly are the flags of run that a study file cannot set (README,
+// "Commands and options").
+var flagOnly = map[string]bool{"study": true, "force": true, "quiet": true, "workers": true, "shard": true}
+
+// worded is err said in our words (msg), still matching errors.Is.
+type worded struct {
+	msg string
+	err error
+}
+
+func (e *worded) Error() string { return e.msg }
+func (e *worded) Unwrap() error { return e.err }
 
 // lineErr carries a more precise line (a list item) out of set.
 type lineErr struct {

@@ -330,6 +330,11 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		if !errors.Is(err, os.ErrNotExist) || !strings.HasPrefix(err.Error(), "inputs: ") {
 			t.Fatalf("got %v", err)
 		}
+		// In our words, as for a study table (it was "cannot read study
+		// file: open ...: no such file or directory").
+		if want := "study file " + filepath.Join(sub, "none.yaml") + " does not exist; check the path"; !strings.Contains(err.Error(), want) || strings.Contains(err.Error(), "open ") {
+			t.Errorf("got %v, want %q", err, want)
+		}
 	})
 }
 
