@@ -588,12 +588,12 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
 		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"model n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
-		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
+		{"model needing too much memory", []string{"run", "--model", "m=" + huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region", f.region, "--iterations", "5", "--region-buffers=" + hundred}, 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
 		{"region checksum fails", f.withRegion(fakeGDB), 2, []string{"region", "fake.gdb", "is a directory"}, "", ""},
-		{"occurrences bad and region checksum fails", f.withRegion(fakeGDB, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n")), 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
+		{"occurrences bad and region checksum fails", []string{"run", "--model", "m=" + f.model, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n"), "--region", fakeGDB, "--iterations", "5"}, 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
 		{"region a zipped shapefile", f.withRegion(f.file("region.zip", "PK\x03\x04 not really")), 2, []string{"region.zip", "unzipped first"}, "", ""},
 		{"region a GDAL virtual path", f.withRegion("/vsizip/" + filepath.Join(f.dir, "region.zip") + "/region.shp"), 2, []string{"region", "/vsizip/", "local files only", "unzip"}, "", ""},
 		{"model a URL", f.withModel("https://example.invalid/model.tif"), 2, []string{"model m", "https://example.invalid/model.tif", "URL", "download"}, "", ""},

@@ -193,6 +193,9 @@ reports how much of each score comes from the extent rather than from the model.
 			}
 			return fault.BadInput(fmt.Errorf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))
 		}
+		if m := givenTwiceError.FindStringSubmatch(err.Error()); m != nil {
+			return fault.BadInput(fmt.Errorf("%s (see '%s --help')", m[1], c.CommandPath()))
+		}
 		return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
 	root.AddCommand(
@@ -236,6 +239,11 @@ reports how much of each score comes from the extent rather than from the model.
 	wrap(root.Commands())
 	return root
 }
+
+// givenTwiceError matches pflag's message for a flag given twice
+// (onceString), whose own words say it all: pflag's "invalid argument
+// ... for ... flag:" before them is cut.
+var givenTwiceError = regexp.MustCompile(`^invalid argument ".*" for ".*" flag: (--[a-z-]+ is given twice .*)$`)
 
 // numberError matches pflag's message for a flag value Go cannot parse,
 // which quotes Go's own parser ("strconv.ParseUint: parsing ..."): the

@@ -181,6 +181,34 @@ func (w wholeFlag) Set(s string) error {
 
 func (w wholeFlag) Type() string { return "int" }
 
+// onceString is a string flag that may be given once: given again with
+// another value it is refused, since only the last would be used and
+// the other (an occurrence file, a region) left out without a word. The
+// same value twice is accepted. Its Type is pflag's "string", so the
+// help reads as before.
+type onceString struct {
+	p    *string
+	name string
+	set  bool
+}
+
+func (o *onceString) String() string {
+	if o.p == nil {
+		return ""
+	}
+	return *o.p
+}
+
+func (o *onceString) Set(s string) error {
+	if o.set && s != *o.p {
+		return fmt.Errorf("--%s is given twice (%q, then %q); only one is used: give it once", o.name, *o.p, s)
+	}
+	*o.p, o.set = s, true
+	return nil
+}
+
+func (o *onceString) Type() string { return "string" }
+
 // bindRunFlags binds the flags of run.
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) }
 
@@ -190,11 +218,11 @@ func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) 
 // help, which shows only the flags that change the family or the files it
 // writes.
 func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
-	f.StringVar(&o.Study, "study", "", "study `FILE` (YAML) whose keys are these flag names")
+	f.Var(&onceString{p: &o.Study, name: "study"}, "study", "study `FILE` (YAML) whose keys are these flag names")
 	for _, s := range settings.Table {
 		switch p := s.Field(&o.Values).(type) {
 		case *string:
-			f.StringVar(p, s.Name, *p, s.Usage)
+			f.Var(&onceString{p: p, name: s.Name}, s.Name, s.Usage)
 		case *[]string:
 			f.StringArrayVar(p, s.Name, *p, s.Usage)
 		case *bool:
