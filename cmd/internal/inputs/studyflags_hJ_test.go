@@ -2,6 +2,8 @@ package inputs
 
 import (
 	"errors"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -22,6 +24,24 @@ func TestStudyFlagOnlyKeysHJ(t *testing.T) {
 			if !strings.Contains(msg, want) {
 				t.Errorf("%s: lacks %q: %s", key, want, msg)
 			}
+		}
+	}
+}
+
+// TestStudyBinaryFileHJ: a raster or a GeoPackage given as --study is
+// named as a binary file; the message said its first odd byte was "likely
+// Latin-1 or Windows-1252, e.g. an accented letter". The bytes are a
+// little-endian TIFF header and SQLite's ("SQLite format 3\0").
+func TestStudyBinaryFileHJ(t *testing.T) {
+	dir := t.TempDir()
+	for name, body := range map[string]string{"model.tif": "II*\x00\x08\x00\x00\x00\x10\x00\xf0", "region.gpkg": "SQLite format 3\x00\x10\x00"} {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, err := LoadStudy(p)
+		if err == nil || !strings.Contains(err.Error(), p+" line 1") || !strings.Contains(err.Error(), "it holds NUL bytes, so it is not text") || strings.Contains(err.Error(), "Latin-1") {
+			t.Errorf("%s: %v", name, err)
 		}
 	}
 }
