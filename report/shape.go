@@ -209,7 +209,7 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 			at = path + "." + key
 		}
 		if seen[key] {
-			return fmt.Errorf("%s is given twice; keep one", at)
+			return fmt.Errorf("%s is given twice; keep one", cutShape(at))
 		}
 		seen[key] = true
 		v, err := w.walk(at, fields[key].t, depth+1)

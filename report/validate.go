@@ -4,6 +4,7 @@ import (
 	"encoding/base64"
 	"fmt"
 	"math"
+	"regexp"
 
 	"areasweep/extent/vocab"
 )
@@ -308,8 +309,25 @@ type validator struct {
 
 func (v *validator) fail(at, format string, args ...any) {
 	if v.err == nil {
-		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, at, fmt.Sprintf(format, args...))
+		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, cutLong(at), cutLong(fmt.Sprintf(format, args...)))
 	}
+}
+
+// longWord is a run of more than 80 characters without a space: a name,
+// id or text of a hand-edited file that a message would repeat in full.
+var longWord = regexp.MustCompile(`[^\s,;]{81,}`)
+
+// cutLong shortens each long word of s to its first 60 characters, so
+// that a message stays a few lines (a model named with 100,000
+// characters made a message of 100 kB).
+func cutLong(s string) string {
+	return longWord.ReplaceAllStringFunc(s, func(w string) string {
+		r := []rune(w)
+		if len(r) <= 80 {
+			return w
+		}
+		return fmt.Sprintf("%s... (%d characters)", string(r[:60]), len(r))
+	})
 }
 
 func (v *validator) finite(at string, x float64) {
