@@ -52,3 +52,24 @@ func TestFileFlagGivenTwiceHJ(t *testing.T) {
 		t.Fatalf("the same value twice: exit %d: %s", code, se)
 	}
 }
+
+// TestLongFlagValueCutHJ: a flag value of 100,000 characters is shown
+// by its first 60 and its length; pflag's message quoted it in full
+// (twice: 200 kB on the terminal). The message stays in our words.
+func TestLongFlagValueCutHJ(t *testing.T) {
+	long := strings.Repeat("9", 100000)
+	for _, args := range [][]string{
+		{"run", "--seed", long},
+		{"run", "--iterations", long},
+		{"extents", "--fraction", long},
+		{"run", "--region-buffers=" + long},
+		{"run", "--out", long, "--out", "b"},
+	} {
+		var so, se strings.Builder
+		code := Main(args, nil, &so, &se)
+		msg := se.String()
+		if code != 2 || len(msg) > 600 || !strings.Contains(msg, " (100000 characters)") || strings.Contains(msg, "strconv") {
+			t.Errorf("%s %s: exit %d, %d bytes: %.400s", args[0], args[1], code, len(msg), msg)
+		}
+	}
+}

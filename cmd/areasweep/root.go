@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -185,16 +186,21 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		// pflag quotes the value in full (twice): a long one is cut
+		// (cutQuoted) once the message is in our words.
 		if m := numberError.FindStringSubmatch(err.Error()); m != nil {
 			what := map[string]string{"Uint": "a whole number of 0 or more", "Int": "a whole number", "Float": "a number", "Bool": "true or false"}[m[2]]
 			why := "is not " + what
 			if m[4] == "value out of range" {
 				why = "is out of range"
 			}
-			return fault.BadInput(fmt.Errorf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))))
 		}
 		if m := givenTwiceError.FindStringSubmatch(err.Error()); m != nil {
-			return fault.BadInput(fmt.Errorf("%s (see '%s --help')", m[1], c.CommandPath()))
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("%s (see '%s --help')", m[1], c.CommandPath()))))
+		}
+		if cut := cutQuoted(err.Error()); cut != err.Error() {
+			err = errors.New(cut)
 		}
 		return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
@@ -238,6 +244,24 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	wrap(root.Commands())
 	return root
+}
+
+// longQuoted is a quoted value of more than 80 characters in a flag's
+// error (pflag's "invalid argument %q", Go's "parsing %q").
+var longQuoted = regexp.MustCompile(`"((?:[^"\\]|\\.){81,}?)"`)
+
+// cutQuoted shortens each long quoted value in msg to its first 60
+// characters and its length: a 100,000-digit --seed made a message of
+// 200 kB.
+func cutQuoted(msg string) string {
+	return longQuoted.ReplaceAllStringFunc(msg, func(q string) string {
+		in := q[1 : len(q)-1]
+		r := []rune(in)
+		if len(r) <= 80 {
+			return q
+		}
+		return fmt.Sprintf("\"%s...\" (%d characters)", string(r[:60]), len(r))
+	})
 }
 
 // givenTwiceError matches pflag's message for a flag given twice

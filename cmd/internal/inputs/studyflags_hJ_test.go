@@ -45,3 +45,30 @@ func TestStudyBinaryFileHJ(t *testing.T) {
 		}
 	}
 }
+
+// TestStudyLongValueCutHJ: a study file value of 100,000 characters is
+// quoted by its first 60 and its length, as a table cell is; the message
+// repeated it in full (100 to 200 kB).
+func TestStudyLongValueCutHJ(t *testing.T) {
+	long := strings.Repeat("9", 100000)
+	for _, body := range []string{
+		"iterations: " + long + "\n",
+		"seed: " + long + "\n",
+		"fraction: x" + long + "\n",
+		"no-thin: " + long + "\n",
+		"model: " + long + "x=m.tif\n",
+		"region-buffers: \"1," + long + "x\"\n",
+	} {
+		_, err := ParseStudy(strings.NewReader(body), "s.yaml", "")
+		if err == nil || len(err.Error()) > 600 || !strings.Contains(err.Error(), "... (1000") {
+			t.Errorf("%.20s: %d bytes: %.300v", body, len(errString(err)), err)
+		}
+	}
+}
+
+func errString(err error) string {
+	if err == nil {
+		return ""
+	}
+	return err.Error()
+}
