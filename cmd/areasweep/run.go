@@ -262,7 +262,7 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 					return fmt.Errorf("%w (the value comes from the study file %s, key %s)", err, o.Study, m[1])
 				}
 			}
-			if len(*st) == 0 {
+			if len(*st) == 0 && strings.HasPrefix(err.Error(), "no ") && strings.Contains(err.Error(), " given: add --") {
 				// An empty file (not saved, or the wrong one) sets
 				// nothing: the message about a missing input must say so.
 				return fmt.Errorf("%w; the study file %s sets nothing (it is empty, or holds only comments and keys without values): is it the right file, and saved?", err, o.Study)

@@ -10,7 +10,8 @@ import (
 // TestEmptyStudyFileHJ: a study file that sets nothing (empty, only
 // comments, keys without values) is named when the run then lacks an
 // input; the message said only "no model given", as if no study file had
-// been given. Nothing is written.
+// been given. Nothing is written. Another problem (--iterations 0) is
+// said without it.
 func TestEmptyStudyFileHJ(t *testing.T) {
 	dir := t.TempDir()
 	for name, body := range map[string]string{"empty.yaml": "", "comments.yaml": "# to do\nseed:\n"} {
@@ -30,5 +31,11 @@ func TestEmptyStudyFileHJ(t *testing.T) {
 				t.Errorf("%s --study %s: %s was created", cmd, name, out)
 			}
 		}
+	}
+	// A problem other than a missing input gets no word about the file.
+	var so, se strings.Builder
+	code := Main([]string{"run", "--study", filepath.Join(dir, "empty.yaml"), "--model", "m=m.tif", "--occurrences", "o.csv", "--region", "r.gpkg", "--iterations", "0", "--out", filepath.Join(dir, "o")}, nil, &so, &se)
+	if code != 2 || !strings.Contains(se.String(), "--iterations is 0") || strings.Contains(se.String(), "sets nothing") {
+		t.Errorf("iterations 0 with an empty study file: exit %d: %s", code, se.String())
 	}
 }
