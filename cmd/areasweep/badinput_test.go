@@ -494,7 +494,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
 		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},
 		{"demo seed out of range", []string{"demo", "--scenario-seed", "99999999999999999999"}, 2, []string{"--scenario-seed", "is out of range", "demo --help"}, "", ""},
-		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"report accepts 1 arg(s), received 2", "report --help"}, "", ""},
+		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"'areasweep report' takes one argument, DIR (got 2: ", "report --help"}, "", ""},
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
 		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
 		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},

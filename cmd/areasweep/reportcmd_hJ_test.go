@@ -48,3 +48,23 @@ func TestReportOnBatchFolderHJ(t *testing.T) {
 		t.Errorf("the report wrote into the linked folder: %v", l)
 	}
 }
+
+// TestArgCountInOurWordsHJ: report given no folder or two, and batch two
+// tables, say what the command takes and what it got; cobra's "accepts 1
+// arg(s), received 2" reached the user.
+func TestArgCountInOurWordsHJ(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"report"}, "'areasweep report' takes one argument, DIR (got none)"},
+		{[]string{"report", "a", "b"}, `'areasweep report' takes one argument, DIR (got 2: "a", "b")`},
+		{[]string{"batch", "a.csv", "b.csv"}, `'areasweep batch' takes at most one argument, TABLE (got 2: "a.csv", "b.csv")`},
+	} {
+		var so, se strings.Builder
+		code := Main(c.args, nil, &so, &se)
+		if msg := se.String(); code != 2 || !strings.Contains(msg, c.want) || strings.Contains(msg, "arg(s)") {
+			t.Errorf("%v: exit %d: %s", c.args, code, msg)
+		}
+	}
+}

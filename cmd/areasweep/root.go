@@ -264,6 +264,10 @@ func cutQuoted(msg string) string {
 	})
 }
 
+// argCountError matches cobra's message for a command given too many or
+// too few arguments (ExactArgs(1), MaximumNArgs(1)).
+var argCountError = regexp.MustCompile(`^accepts (at most )?1 arg\(s\), received \d+$`)
+
 // givenTwiceError matches pflag's message for a flag given twice
 // (onceString), whose own words say it all: pflag's "invalid argument
 // ... for ... flag:" before them is cut.
@@ -297,6 +301,19 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 			return fault.BadInput(fmt.Errorf("'%s' takes no arguments, got %q%s (see '%s --help')", c.CommandPath(), args[0], hint, c.CommandPath()))
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
 			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
+		}
+		if m := argCountError.FindStringSubmatch(err.Error()); m != nil {
+			// cobra's "accepts 1 arg(s), received 2", in our words.
+			what := strings.TrimSpace(strings.TrimPrefix(c.Use, c.Name()))
+			got := "none"
+			if len(args) > 0 {
+				q := make([]string, len(args))
+				for i, a := range args {
+					q[i] = fmt.Sprintf("%q", a)
+				}
+				got = fmt.Sprintf("%d: %s", len(args), strings.Join(q, ", "))
+			}
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("'%s' takes %sone argument, %s (got %s) (see '%s --help')", c.CommandPath(), m[1], what, got, c.CommandPath()))))
 		}
 		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
 	}
