@@ -30,7 +30,9 @@ var yamlRewords = []struct {
 	{regexp.MustCompile(`found undefined tag handle|did not find expected tag URI|did not find expected '!'|cannot decode !!`), "a tag (a word starting with '!') that is not understood here: remove it, or quote the value"},
 	{regexp.MustCompile(`found unexpected document indicator`), "a line starting with '---' or '...' inside a value"},
 	{regexp.MustCompile(`did not find expected comment or line break`), "more text after a value where the line should end"},
-	{regexp.MustCompile(`directive`), "a line starting with '%' (a YAML directive) that is not understood: quote a value starting with %"},
+	{regexp.MustCompile(`directive|found unexpected non-alphabetical character`), "a line starting with '%' (a YAML directive) that is not understood: quote a value starting with %"},
+	{regexp.MustCompile(`found an indentation indicator equal to 0`), "a value starting with '|' or '>' (a block of text) not written as one: quote the value"},
+	{regexp.MustCompile(`did not find expected whitespace or line break`), "a value starting with '!', '|' or '>' followed by other text: quote the value"},
 }
 
 // yamlWords puts a YAML reader's problem in our words; one we do not

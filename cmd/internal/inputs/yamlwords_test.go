@@ -30,6 +30,9 @@ func TestStudySyntaxInOurWords(t *testing.T) {
 		{"Windows path in double quotes", "region: \"C:\\data\\r.gpkg\"\n", "write a Windows path in single quotes"},
 		{"anchor without a name", "model:\n- a: *,\n", "an '&' or '*' without a name after it"},
 		{"list items not aligned", "model:\n  - a=m.tif\n - b=n.tif\n", "near line"},
+		// Found by mutating the demo's study file at random (20,000 files).
+		{"block scalar of indentation 0", "region: |0\n  r.gpkg\n", "a value starting with '|' or '>' (a block of text) not written as one"},
+		{"percent line", "seed: 1\n%x\n", "a line starting with '%'"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -68,6 +71,24 @@ func TestStudySyntaxInOurWords(t *testing.T) {
 			if strings.Contains(msg, raw) {
 				t.Errorf("%s: holds the YAML reader's %q: %s", name, raw, msg)
 			}
+		}
+	}
+}
+
+// TestYAMLWordsOfReaderHJ: the reader's problems the study files above do
+// not produce, as go.yaml.in/yaml/v3's scanner writes them (its source),
+// are said in our words too, and one it may add later plainly.
+func TestYAMLWordsOfReaderHJ(t *testing.T) {
+	for in, want := range map[string]string{
+		": did not find expected whitespace or line break":     "a value starting with '!', '|' or '>' followed by other text",
+		": found undefined tag handle":                         "a tag (a word starting with '!')",
+		": found unknown escape character":                     "write a Windows path in single quotes",
+		": control characters are not allowed":                 "a control character",
+		": found unexpected document indicator":                "a line starting with '---' or '...' inside a value",
+		": some wording the reader may add in a later version": "text that is not valid YAML",
+	} {
+		if got := yamlWords(in); !strings.Contains(got, want) {
+			t.Errorf("yamlWords(%q) = %q, want %q in it", in, got, want)
 		}
 	}
 }
