@@ -69,7 +69,7 @@ func checkRegular(path, what string) error {
 		return nil // the open that follows reports it
 	}
 	if st.IsDir() {
-		return fmt.Errorf("inputs: %s %s is a directory, not a file", what, path)
+		return fmt.Errorf("inputs: %s %s is a directory, not a file; give the path of the file itself", what, path)
 	}
 	if !st.Mode().IsRegular() && st.Mode()&os.ModeNamedPipe == 0 {
 		return fmt.Errorf("inputs: %s %s is not a regular file (it is a device or socket); give the path of a text file", what, path)

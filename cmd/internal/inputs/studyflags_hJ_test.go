@@ -72,3 +72,18 @@ func errString(err error) string {
 	}
 	return err.Error()
 }
+
+// TestStudyDirectoryHJ: a folder given as --study (or as a study table)
+// is named with what to give instead; the message stopped at "is a
+// directory, not a file".
+func TestStudyDirectoryHJ(t *testing.T) {
+	dir := t.TempDir()
+	_, err := LoadStudy(dir)
+	if err == nil || !strings.Contains(err.Error(), "study file "+dir+" is a directory, not a file; give the path of the file itself") {
+		t.Errorf("LoadStudy(folder): %v", err)
+	}
+	_, err = LoadBatch(dir)
+	if err == nil || !strings.Contains(err.Error(), "study table "+dir+" is a directory, not a file; give the path of the file itself") {
+		t.Errorf("LoadBatch(folder): %v", err)
+	}
+}
