@@ -530,20 +530,25 @@ func Decode(path string, data []byte) (*Results, error) {
 	if len(bytes.TrimSpace(data)) == 0 {
 		return nil, fmt.Errorf("report: %s is empty: the run that wrote it did not finish, or the file was emptied; give the --out folder of a finished run, or rerun areasweep run", path)
 	}
+	if bytes.HasPrefix(data, utf8BOM) {
+		return nil, fmt.Errorf("report: %s starts with a byte-order mark (the bytes EF BB BF, which some editors add when saving as \"UTF-8 with BOM\"); JSON has none and a run writes none: restore the file from a copy, or save it as UTF-8 without BOM", path)
+	}
 	shapeErr := CheckShape(data)
 	var top map[string]json.RawMessage
 	if err := json.Unmarshal(data, &top); err != nil {
 		if shapeErr != nil && !IsTopLevelShapeError(shapeErr) {
 			return nil, shapeError(path, shapeErr) // JSON broken or cut short at a field
 		}
-		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(err))
+		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(data, err))
 	}
 	raw, ok := top["schema_version"]
 	if !ok {
 		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (it has no schema_version); give the --out folder of a finished run", path)
 	}
 	var version int
-	if json.Unmarshal(raw, &version) == nil && version != SchemaVersion {
+	// A null reads as 0 without an error: it is the shape's problem
+	// (schema_version is null), not a version 0.
+	if json.Unmarshal(raw, &version) == nil && version != SchemaVersion && string(bytes.TrimSpace(raw)) != "null" {
 		// Another version's file: its shape is another's too, so this
 		// comes before the shape's problems.
 		var sw struct {
@@ -561,7 +566,7 @@ func Decode(path string, data []byte) (*Results, error) {
 	}
 	var r Results
 	if err := json.Unmarshal(data, &r); err != nil {
-		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(err))
+		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(data, err))
 	}
 	if err := validate(path, &r); err != nil {
 		return nil, err
@@ -576,20 +581,20 @@ func shapeError(path string, err error) error {
 
 // jsonCause says in plain words why a file is not the JSON of a results
 // file: cut short, not JSON (where), or JSON of another shape.
-func jsonCause(err error) string {
+func jsonCause(data []byte, err error) string {
 	var syn *json.SyntaxError
 	var typ *json.UnmarshalTypeError
 	switch {
 	case errors.Is(err, io.ErrUnexpectedEOF) || err.Error() == "unexpected end of JSON input":
 		return "it is cut short"
 	case errors.As(err, &syn):
-		return fmt.Sprintf("it is not valid JSON at byte %d: %s", syn.Offset, syn.Error())
+		return "it is not valid JSON " + jsonSyntaxWords(data, syn.Offset, syn)
 	case errors.As(err, &typ) && typ.Field == "":
 		return fmt.Sprintf("it holds a JSON %s, not an object", typ.Value)
 	case errors.As(err, &typ):
 		return fmt.Sprintf("its field %s holds a JSON %s of the wrong kind", typ.Field, typ.Value)
 	}
-	return err.Error()
+	return "it cannot be read as JSON"
 }
 
 // Encode returns the canonical JSON encoding of r: two-space indent, a final

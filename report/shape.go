@@ -33,7 +33,7 @@ import (
 func CheckShape(data []byte) error {
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
-	w := &shapeWalker{dec: dec}
+	w := &shapeWalker{dec: dec, data: data}
 	if _, err := w.walk("", reflect.TypeOf(Results{}), 0); err != nil {
 		return err
 	}
@@ -54,6 +54,7 @@ const RequiredFieldsRule = "every field a run always writes must be there (field
 // field found (reported once the walk has found no other problem).
 type shapeWalker struct {
 	dec     *json.Decoder
+	data    []byte // the file, for the line of a syntax error
 	missing string
 }
 
@@ -89,7 +90,7 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 	}
 	tok, err := dec.Token()
 	if err != nil {
-		return nil, jsonBroken(dec, path, err)
+		return nil, w.jsonBroken(path, err)
 	}
 	for t != nil && t.Kind() == reflect.Pointer {
 		if tok == nil {
@@ -145,7 +146,7 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 			// bounds): decoding would fill the missing numbers with 0.
 			return nil, fmt.Errorf("%s holds %d values; a run writes %d there", shapePath(path), n, t.Len())
 		}
-		return nil, closeShape(dec, path)
+		return nil, w.closeShape(path)
 	case string:
 		if want != "" && want != "a string" {
 			return nil, fmt.Errorf("%s holds the string %q; a run writes %s there", shapePath(path), cutShape(v), want)
@@ -200,7 +201,7 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 	for w.dec.More() {
 		tok, err := w.dec.Token()
 		if err != nil {
-			return jsonBroken(w.dec, path, err)
+			return w.jsonBroken(path, err)
 		}
 		key := tok.(string)
 		at := key
@@ -208,7 +209,7 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 			at = path + "." + key
 		}
 		if seen[key] {
-			return fmt.Errorf("%s is given twice; keep one", at)
+			return fmt.Errorf("%s is given twice; keep one", cutShape(at))
 		}
 		seen[key] = true
 		v, err := w.walk(at, fields[key].t, depth+1)
@@ -219,7 +220,7 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 			plain[key] = v
 		}
 	}
-	if err := closeShape(w.dec, path); err != nil {
+	if err := w.closeShape(path); err != nil {
 		return err
 	}
 	if w.missing != "" || t == nil || path == recomputedField || strings.HasPrefix(path, recomputedField+".") {
@@ -250,19 +251,20 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 const maxShapeDepth = 32
 
 // closeShape reads the ']' or '}' that ends the list or object at path.
-func closeShape(dec *json.Decoder, path string) error {
-	if _, err := dec.Token(); err != nil {
-		return jsonBroken(dec, path, err)
+func (w *shapeWalker) closeShape(path string) error {
+	if _, err := w.dec.Token(); err != nil {
+		return w.jsonBroken(path, err)
 	}
 	return nil
 }
 
 // jsonBroken says where the JSON of a results file stops being JSON.
-func jsonBroken(dec *json.Decoder, path string, err error) error {
+// encoding/json's wording is put in ours (jsonSyntaxWords).
+func (w *shapeWalker) jsonBroken(path string, err error) error {
 	if err == io.EOF || errors.Is(err, io.ErrUnexpectedEOF) {
 		return fmt.Errorf("%s: the file is cut short there", shapePath(path))
 	}
-	return fmt.Errorf("%s: not valid JSON there (at byte %d: %v; JSON has no NaN or Infinity)", shapePath(path), dec.InputOffset(), err)
+	return fmt.Errorf("%s: not valid JSON there (%s)", shapePath(path), jsonSyntaxWords(w.data, w.dec.InputOffset(), err))
 }
 
 // cutShape shortens a quoted value to 60 characters.

@@ -4,6 +4,7 @@ import (
 	"encoding/base64"
 	"fmt"
 	"math"
+	"regexp"
 
 	"areasweep/extent/vocab"
 )
@@ -33,7 +34,8 @@ const MaxPreviewSide = 4096
 //   - paired records have a known kind and method, counts >= 0 (at most
 //     resamples not formed), finite values and a non-negative SE;
 //   - points have a known role and status, finite coordinates and a cell
-//     of the grid (row and col -1 for a point outside the raster);
+//     of the grid (row and col -1 for a point outside the raster), and
+//     point_counts counts them;
 //   - the preview's size and encoded lengths match.
 func Validate(r *Results) error {
 	return validate("results.json", r)
@@ -54,6 +56,7 @@ func validate(file string, r *Results) error {
 	v.curves(r.Curves)
 	v.omissions(r.Omissions)
 	v.points(r.Points, r.Grid)
+	v.pointCounts(r.PointCounts, r.Points)
 	if r.Preview != nil {
 		v.preview(r.Preview, len(r.Extents))
 	}
@@ -258,6 +261,42 @@ func (v *validator) points(ps []Point, g Grid) {
 	}
 }
 
+// pointCounts checks that point_counts counts the points by status (and
+// the scored ones by role), as a run writes them: a points list emptied
+// or cut by hand would otherwise drop the points from the maps and the
+// check of test points near training points (and its warning) without a
+// word.
+func (v *validator) pointCounts(pc PointCounts, ps []Point) {
+	var n PointCounts
+	for _, p := range ps {
+		switch p.Status {
+		case vocab.PointScored:
+			if p.Role == vocab.RoleTrain {
+				n.Train++
+			} else {
+				n.Test++
+			}
+		case vocab.PointThinned:
+			n.Thinned++
+		case vocab.PointOutsideRaster:
+			n.OutsideRaster++
+		case vocab.PointNoData:
+			n.NoData++
+		}
+	}
+	for _, c := range []struct {
+		name, what string
+		want, got  int
+	}{{"train", "scored training points", pc.Train, n.Train}, {"test", "scored test points", pc.Test, n.Test},
+		{"thinned", "thinned points", pc.Thinned, n.Thinned}, {"outside_raster", "points outside the raster", pc.OutsideRaster, n.OutsideRaster},
+		{"nodata", "points on no-data cells", pc.NoData, n.NoData}} {
+		if c.want != c.got {
+			v.fail("point_counts."+c.name, "%d, but points lists %d %s; a run counts every point it lists", c.want, c.got, c.what)
+			return
+		}
+	}
+}
+
 // validator keeps the first problem found.
 // validator gathers Validate's first problem; file names the file in it.
 type validator struct {
@@ -270,8 +309,25 @@ type validator struct {
 
 func (v *validator) fail(at, format string, args ...any) {
 	if v.err == nil {
-		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, at, fmt.Sprintf(format, args...))
+		v.err = fmt.Errorf("report: %s %s: %s; the file was changed or damaged: restore it from a copy, or rerun areasweep run to get a new one", v.file, cutLong(at), cutLong(fmt.Sprintf(format, args...)))
 	}
+}
+
+// longWord is a run of more than 80 characters without a space: a name,
+// id or text of a hand-edited file that a message would repeat in full.
+var longWord = regexp.MustCompile(`[^\s,;]{81,}`)
+
+// cutLong shortens each long word of s to its first 60 characters, so
+// that a message stays a few lines (a model named with 100,000
+// characters made a message of 100 kB).
+func cutLong(s string) string {
+	return longWord.ReplaceAllStringFunc(s, func(w string) string {
+		r := []rune(w)
+		if len(r) <= 80 {
+			return w
+		}
+		return fmt.Sprintf("%s... (%d characters)", string(r[:60]), len(r))
+	})
 }
 
 func (v *validator) finite(at string, x float64) {

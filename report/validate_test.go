@@ -85,6 +85,18 @@ func TestValidateRefuses(t *testing.T) {
 				}
 			}
 		}, "col -1 is not a cell of the"},
+		// A points list emptied or cut by hand dropped the points from
+		// the maps and the near-training-point warning without a word
+		// (HJ's audit); the sample's point_counts count its points.
+		{"points emptied", func(r *Results) { r.Points = nil }, "point_counts.train: 50, but points lists 0 scored training points"},
+		{"a test point removed", func(r *Results) {
+			for i := range r.Points {
+				if r.Points[i].Status == "scored" && r.Points[i].Role == "test" {
+					r.Points = append(r.Points[:i], r.Points[i+1:]...)
+					return
+				}
+			}
+		}, "point_counts.test: 22, but points lists 21 scored test points"},
 		{"point outside with a cell", func(r *Results) {
 			r.Points[0].Status, r.Points[0].Row, r.Points[0].Col = "outside_raster", 2, 3
 		}, "a point outside the raster has row -1 and col -1"},

@@ -529,7 +529,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
 		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},
 		{"demo seed out of range", []string{"demo", "--scenario-seed", "99999999999999999999"}, 2, []string{"--scenario-seed", "is out of range", "demo --help"}, "", ""},
-		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"report accepts 1 arg(s), received 2", "report --help"}, "", ""},
+		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"'areasweep report' takes one argument, DIR (got 2: ", "report --help"}, "", ""},
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
 		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
 		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},
@@ -624,12 +624,12 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
 		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"null n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
-		{"model needing too much memory", f.withModel(huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region-buffers="+hundred), 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
+		{"model needing too much memory", []string{"run", "--model", "m=" + huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region", f.region, "--iterations", "5", "--region-buffers=" + hundred}, 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
 		{"region checksum fails", f.withRegion(fakeGDB), 2, []string{"region", "fake.gdb", "is a directory"}, "", ""},
-		{"occurrences bad and region checksum fails", f.withRegion(fakeGDB, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n")), 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
+		{"occurrences bad and region checksum fails", []string{"run", "--model", "m=" + f.model, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n"), "--region", fakeGDB, "--iterations", "5"}, 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
 		{"region a zipped shapefile", f.withRegion(f.file("region.zip", "PK\x03\x04 not really")), 2, []string{"region.zip", "unzipped first"}, "", ""},
 		{"region a GDAL virtual path", f.withRegion("/vsizip/" + filepath.Join(f.dir, "region.zip") + "/region.shp"), 2, []string{"region", "/vsizip/", "local files only", "unzip"}, "", ""},
 		{"model a URL", f.withModel("https://example.invalid/model.tif"), 2, []string{"model m", "https://example.invalid/model.tif", "URL", "download"}, "", ""},

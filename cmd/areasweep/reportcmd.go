@@ -6,10 +6,12 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
+	"areasweep/cmd/internal/batchrun"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/report"
@@ -68,6 +70,13 @@ func reportRun(o *ReportOptions) error {
 		if shards, _ := filepath.Glob(filepath.Join(o.Dir, "shard-*-of-*.aspf")); len(shards) > 0 {
 			return fault.BadInput(fmt.Errorf("%s holds the partial file(s) of a sharded run (%s), not its results: merge the shards first (areasweep merge --out DIR SHARD...), then the report is in DIR", o.Dir, filepath.Base(shards[0])))
 		}
+		if st, err := os.Stat(filepath.Join(o.Dir, batchrun.OwnDir)); err == nil && st.IsDir() {
+			example := filepath.Join(o.Dir, "ID")
+			if found, _ := filepath.Glob(filepath.Join(o.Dir, "*", "results.json")); len(found) > 0 {
+				example = filepath.Dir(found[0])
+			}
+			return fault.BadInput(fmt.Errorf("%s is the --out folder of a batch, which holds no results.json of its own: each study's report is in its folder (areasweep report %s --force); the summary is rewritten by areasweep batch TABLE --out %s --summary-only", o.Dir, example, o.Dir))
+		}
 		return fault.BadInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
 	}
 	if !st.Mode().IsRegular() {
@@ -84,7 +93,11 @@ func reportRun(o *ReportOptions) error {
 		}
 	}
 	if st, err := os.Lstat(filepath.Join(o.Dir, "figures")); err == nil && !st.IsDir() {
-		return fault.BadInput(fmt.Errorf("%s is a file; the report writes its figures into a folder of that name: move the file, then run again", filepath.Join(o.Dir, "figures")))
+		what := "a file"
+		if st.Mode()&fs.ModeSymlink != 0 {
+			what = "a link" // the report does not write through it, into another folder
+		}
+		return fault.BadInput(fmt.Errorf("%s is %s; the report writes its figures into a folder of that name: move the %s, then run again", filepath.Join(o.Dir, "figures"), what, strings.TrimPrefix(what, "a ")))
 	}
 	if err := notFileInTheWay(o.Dir, "report.html", "methods.md"); err != nil {
 		return err

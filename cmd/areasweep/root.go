@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -185,13 +186,21 @@ reports how much of each score comes from the extent rather than from the model.
 	}
 	root.SetVersionTemplate(versionLine() + "\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		// pflag quotes the value in full (twice): a long one is cut
+		// (cutQuoted) once the message is in our words.
 		if m := numberError.FindStringSubmatch(err.Error()); m != nil {
 			what := map[string]string{"Uint": "a whole number of 0 or more", "Int": "a whole number", "Float": "a number", "Bool": "true or false"}[m[2]]
 			why := "is not " + what
 			if m[4] == "value out of range" {
 				why = "is out of range"
 			}
-			return fault.BadInput(fmt.Errorf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("%s: %q %s (see '%s --help')", m[1], m[3], why, c.CommandPath()))))
+		}
+		if m := givenTwiceError.FindStringSubmatch(err.Error()); m != nil {
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("%s (see '%s --help')", m[1], c.CommandPath()))))
+		}
+		if cut := cutQuoted(err.Error()); cut != err.Error() {
+			err = errors.New(cut)
 		}
 		return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
 	})
@@ -237,6 +246,33 @@ reports how much of each score comes from the extent rather than from the model.
 	return root
 }
 
+// longQuoted is a quoted value of more than 80 characters in a flag's
+// error (pflag's "invalid argument %q", Go's "parsing %q").
+var longQuoted = regexp.MustCompile(`"((?:[^"\\]|\\.){81,}?)"`)
+
+// cutQuoted shortens each long quoted value in msg to its first 60
+// characters and its length: a 100,000-digit --seed made a message of
+// 200 kB.
+func cutQuoted(msg string) string {
+	return longQuoted.ReplaceAllStringFunc(msg, func(q string) string {
+		in := q[1 : len(q)-1]
+		r := []rune(in)
+		if len(r) <= 80 {
+			return q
+		}
+		return fmt.Sprintf("\"%s...\" (%d characters)", string(r[:60]), len(r))
+	})
+}
+
+// argCountError matches cobra's message for a command given too many or
+// too few arguments (ExactArgs(1), MaximumNArgs(1)).
+var argCountError = regexp.MustCompile(`^accepts (at most )?1 arg\(s\), received \d+$`)
+
+// givenTwiceError matches pflag's message for a flag given twice
+// (onceString), whose own words say it all: pflag's "invalid argument
+// ... for ... flag:" before them is cut.
+var givenTwiceError = regexp.MustCompile(`^invalid argument ".*" for ".*" flag: (--[a-z-]+ is given twice .*)$`)
+
 // numberError matches pflag's message for a flag value Go cannot parse,
 // which quotes Go's own parser ("strconv.ParseUint: parsing ..."): the
 // flag part, the parser's type, the value and the reason.
@@ -265,6 +301,19 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 			return fault.BadInput(fmt.Errorf("'%s' takes no arguments, got %q%s (see '%s --help')", c.CommandPath(), args[0], hint, c.CommandPath()))
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
 			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))
+		}
+		if m := argCountError.FindStringSubmatch(err.Error()); m != nil {
+			// cobra's "accepts 1 arg(s), received 2", in our words.
+			what := strings.TrimSpace(strings.TrimPrefix(c.Use, c.Name()))
+			got := "none"
+			if len(args) > 0 {
+				q := make([]string, len(args))
+				for i, a := range args {
+					q[i] = fmt.Sprintf("%q", a)
+				}
+				got = fmt.Sprintf("%d: %s", len(args), strings.Join(q, ", "))
+			}
+			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("'%s' takes %sone argument, %s (got %s) (see '%s --help')", c.CommandPath(), m[1], what, got, c.CommandPath()))))
 		}
 		return fault.BadInput(fmt.Errorf("%s %w (see 'areasweep %s --help')", c.Name(), err, c.Name()))
 	}

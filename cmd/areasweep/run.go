@@ -37,6 +37,14 @@ type RunOptions struct {
 // most extent.MaxMembers members anyway.
 const maxBuffers = extent.MaxMembers
 
+// maxBufferKm bounds each buffer distance: no two points of the WGS84
+// ellipsoid lie farther apart than half a meridian, 20,003.93 km (the
+// geodesic from pole to pole; pyproj's Geod(ellps="WGS84").inv(0, 90,
+// 0, -90)), rounded up. A larger buffer takes every cell (or, shrinking,
+// none) and is most likely metres given as km; its id would spell the
+// number out in full (1e300 made an id of 300 digits).
+const maxBufferKm = 20004
+
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
 	return RunOptions{Options: pipeline.Options{Values: settings.Defaults()}}
@@ -173,6 +181,34 @@ func (w wholeFlag) Set(s string) error {
 
 func (w wholeFlag) Type() string { return "int" }
 
+// onceString is a string flag that may be given once: given again with
+// another value it is refused, since only the last would be used and
+// the other (an occurrence file, a region) left out without a word. The
+// same value twice is accepted. Its Type is pflag's "string", so the
+// help reads as before.
+type onceString struct {
+	p    *string
+	name string
+	set  bool
+}
+
+func (o *onceString) String() string {
+	if o.p == nil {
+		return ""
+	}
+	return *o.p
+}
+
+func (o *onceString) Set(s string) error {
+	if o.set && s != *o.p {
+		return fmt.Errorf("--%s is given twice (%q, then %q); only one is used: give it once", o.name, *o.p, s)
+	}
+	*o.p, o.set = s, true
+	return nil
+}
+
+func (o *onceString) Type() string { return "string" }
+
 // bindRunFlags binds the flags of run.
 func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) }
 
@@ -182,11 +218,11 @@ func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) 
 // help, which shows only the flags that change the family or the files it
 // writes.
 func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
-	f.StringVar(&o.Study, "study", "", "study `FILE` (YAML) whose keys are these flag names")
+	f.Var(&onceString{p: &o.Study, name: "study"}, "study", "study `FILE` (YAML) whose keys are these flag names")
 	for _, s := range settings.Table {
 		switch p := s.Field(&o.Values).(type) {
 		case *string:
-			f.StringVar(p, s.Name, *p, s.Usage)
+			f.Var(&onceString{p: p, name: s.Name}, s.Name, s.Usage)
 		case *[]string:
 			f.StringArrayVar(p, s.Name, *p, s.Usage)
 		case *bool:
@@ -225,6 +261,11 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 				if _, inFile := (*st)[m[1]]; inFile {
 					return fmt.Errorf("%w (the value comes from the study file %s, key %s)", err, o.Study, m[1])
 				}
+			}
+			if len(*st) == 0 && strings.HasPrefix(err.Error(), "no ") && strings.Contains(err.Error(), " given: add --") {
+				// An empty file (not saved, or the wrong one) sets
+				// nothing: the message about a missing input must say so.
+				return fmt.Errorf("%w; the study file %s sets nothing (it is empty, or holds only comments and keys without values): is it the right file, and saved?", err, o.Study)
 			}
 			return err
 		}
@@ -399,6 +440,16 @@ func (o *RunOptions) validateLists() error {
 		for i := 1; i < len(sorted); i++ {
 			if sorted[i] == sorted[i-1] {
 				return fmt.Errorf("--%s gives %g twice; give each value once", lst.name, sorted[i])
+			}
+		}
+	}
+	for _, lst := range []struct {
+		name string
+		v    []float64
+	}{{"region-buffers", o.RegionBuffers}, {"point-buffers", o.PointBuffers}, {"hull-buffers", o.HullBuffers}} {
+		for _, d := range lst.v {
+			if math.Abs(d) > maxBufferKm {
+				return fmt.Errorf("--%s value %g km: no two places on Earth lie more than %d km apart; give distances in km (e.g. 50 for 50,000 m); a buffer that large takes every cell (or, shrinking, none), and the family's whole_raster already holds every cell", lst.name, d, maxBufferKm)
 			}
 		}
 	}

@@ -131,6 +131,7 @@ const UnknownFormat = "no format GDAL knows matches its content"
 var (
 	notGeoPackage = regexp.MustCompile(`^.*GPKG: bad application_id=(0x[0-9a-fA-F]+) on .*$`)
 	badJSON       = regexp.MustCompile(`^At line (\d+), character (\d+): (.*)$`)
+	gpkgExtension = regexp.MustCompile(`^File .* has GPKG application_id, but non conformant file extension$`)
 )
 
 // More library wordings put in a user's words (each copied from GDAL
@@ -248,6 +249,7 @@ var (
 		{unknownFormat, UnknownFormat},
 		{notGeoPackage, "an SQLite database but not a GeoPackage: its application id is $1, a GeoPackage's is 0x47504B47"},
 		{badJSON, "its JSON is not valid at line $1, character $2: $3"},
+		{gpkgExtension, "it is a GeoPackage whose name does not end in .gpkg, which GDAL does not open: rename it to end in .gpkg"},
 	}
 	lastRewordings = []rewording{
 		{projCode, ""},

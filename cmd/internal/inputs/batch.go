@@ -323,7 +323,7 @@ func (p *batchParser) parseYAML(data []byte) {
 	var doc yaml.Node
 	if err := yaml.Unmarshal(data, &doc); err != nil {
 		line, msg := yamlSyntax(err)
-		p.add(line, "", "", fmt.Errorf("%w: not valid YAML: %s; indent with spaces (not tabs) and quote values that contain ': '", ErrBatchSyntax, msg))
+		p.add(line, "", "", fmt.Errorf("%w: not valid YAML%s; indent with spaces (not tabs) and quote values that contain ': '", ErrBatchSyntax, msg))
 		return
 	}
 	root := deref(&doc)
@@ -436,7 +436,7 @@ func (p *batchParser) parseCSV(data []byte) {
 		var doc yaml.Node
 		if err := yaml.Unmarshal(block.Bytes(), &doc); err != nil {
 			line, msg := yamlSyntax(err)
-			p.add(line, "", "", fmt.Errorf("%w: the shared settings (the '#' lines at the top) are not valid YAML: %s; write one study key per line, for example\n    # iterations: 1000", ErrBatchSyntax, msg))
+			p.add(line, "", "", fmt.Errorf("%w: the shared settings (the '#' lines at the top) are not valid YAML%s; write one study key per line, for example\n    # iterations: 1000", ErrBatchSyntax, msg))
 		} else if root := deref(&doc); root.Kind == yaml.DocumentNode && len(root.Content) > 0 {
 			m := deref(root.Content[0])
 			switch {
@@ -567,8 +567,7 @@ func yamlSyntax(err error) (int, string) {
 		near = " near line " + m[1]
 	}
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
-	msg = yamlLineRE.ReplaceAllString(msg, "")
-	return 0, strings.Trim(msg, " :") + near
+	return 0, near + ": " + yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
 }
 
 // cellNode turns a CSV cell into the YAML node a study file would hold:

@@ -1,6 +1,7 @@
 package inputs
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -68,7 +69,7 @@ func checkRegular(path, what string) error {
 		return nil // the open that follows reports it
 	}
 	if st.IsDir() {
-		return fmt.Errorf("inputs: %s %s is a directory, not a file", what, path)
+		return fmt.Errorf("inputs: %s %s is a directory, not a file; give the path of the file itself", what, path)
 	}
 	if !st.Mode().IsRegular() && st.Mode()&os.ModeNamedPipe == 0 {
 		return fmt.Errorf("inputs: %s %s is not a regular file (it is a device or socket); give the path of a text file", what, path)
@@ -93,6 +94,11 @@ func shown(s string) string {
 func notUTF8(data []byte) (int, string) {
 	if len(data) >= 2 && ((data[0] == 0xFF && data[1] == 0xFE) || (data[0] == 0xFE && data[1] == 0xFF)) {
 		return 1, "it is UTF-16 text (it starts with a UTF-16 byte-order mark); save it as UTF-8"
+	}
+	if i := bytes.IndexByte(data, 0); i >= 0 {
+		// A raster or a GeoPackage given as text: its bytes are no
+		// accented letters, as the message below would say.
+		return 1 + bytes.Count(data[:i], []byte("\n")), "it holds NUL bytes, so it is not text: a binary file (a raster, a GeoPackage, ...) or UTF-16 text without a byte-order mark; give the text file, saved as UTF-8"
 	}
 	if utf8.Valid(data) {
 		return 0, ""

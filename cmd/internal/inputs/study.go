@@ -79,8 +79,13 @@ func LoadStudy(path string) (*Study, error) {
 		return nil, err
 	}
 	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("inputs: cannot read study file: %w", err)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist; check the path (a relative one is taken from the current folder)", path), err}
+	case errors.Is(err, os.ErrPermission):
+		return nil, &worded{fmt.Sprintf("inputs: study file %s cannot be read (permission denied); check its permissions", path), err}
+	case err != nil:
+		return nil, fmt.Errorf("inputs: cannot read study file %s: %w", path, err)
 	}
 	defer f.Close()
 	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes, 0))
@@ -170,6 +175,9 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 			return nil, serr(k.Line, key, fmt.Errorf("%w: already given at line %d; keep only one of the two", ErrDuplicateKey, first))
 		}
 		seen[key] = k.Line
+		if flagOnly[key] {
+			return nil, serr(k.Line, key, fmt.Errorf("%w: --%s is given on the command line only (--study, --force, --quiet, --workers and --shard cannot be set in a study file): remove the line, and add --%s to the command if you meant it", ErrUnknownKey, key, key))
+		}
 		if !contains(studyKeys, key) {
 			hint := ""
 			if s := closestKey(key); s != "" {
@@ -192,6 +200,19 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 	return st, nil
 }
 
+// flagOnly are the flags of run that a study file cannot set (README,
+// "Commands and options").
+var flagOnly = map[string]bool{"study": true, "force": true, "quiet": true, "workers": true, "shard": true}
+
+// worded is err said in our words (msg), still matching errors.Is.
+type worded struct {
+	msg string
+	err error
+}
+
+func (e *worded) Error() string { return e.msg }
+func (e *worded) Unwrap() error { return e.err }
+
 // lineErr carries a more precise line (a list item) out of set.
 type lineErr struct {
 	line int
@@ -212,11 +233,10 @@ func syntaxError(name string, err error) error {
 		near = " near line " + m[1]
 	}
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
-	msg = yamlLineRE.ReplaceAllString(msg, "")
-	msg = strings.Trim(msg, " :")
-	return &StudyError{File: name, Err: fmt.Errorf("%w: %s%s; write one setting per line as key: value, "+
+	msg = yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
+	return &StudyError{File: name, Err: fmt.Errorf("%w%s: %s; write one setting per line as key: value, "+
 		"indent with spaces (not tabs), and quote values that contain ': ' or start with a special character",
-		ErrStudySyntax, msg, near)}
+		ErrStudySyntax, near, msg)}
 }
 
 func deref(n *yaml.Node) *yaml.Node {
@@ -356,11 +376,11 @@ func intValue(key string, v *yaml.Node) (*int, error) {
 		err := n.Decode(&f)
 		w, ok := wholeFloat(f)
 		if err != nil || !ok {
-			return nil, badValue("%q is not a whole number; write for example\n    %s: 1000", n.Value, key)
+			return nil, badValue("%s is not a whole number; write for example\n    %s: 1000", shown(n.Value), key)
 		}
 		out = w
 	default:
-		return nil, badValue("%q is not a whole number%s; write for example\n    %s: 1000", n.Value, quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 1000", shown(n.Value), quotedHint(n), key)
 	}
 	return &out, nil
 }
@@ -401,11 +421,11 @@ func uintValue(key string, v *yaml.Node) (*uint64, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!int" {
-		return nil, badValue("%q is not a whole number%s; write for example\n    %s: 42", n.Value, quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 42", shown(n.Value), quotedHint(n), key)
 	}
 	var out uint64
 	if err := n.Decode(&out); err != nil {
-		return nil, badValue("%q is not a whole number from 0 to %d; write for example\n    %s: 42", n.Value, uint64(math.MaxUint64), key)
+		return nil, badValue("%s is not a whole number from 0 to %d; write for example\n    %s: 42", shown(n.Value), uint64(math.MaxUint64), key)
 	}
 	return &out, nil
 }
@@ -426,11 +446,11 @@ func floatValue(key string, v *yaml.Node) (*float64, error) {
 func yamlNumber(n *yaml.Node) (float64, error) {
 	tag := n.ShortTag()
 	if tag != "!!int" && tag != "!!float" {
-		return 0, fmt.Errorf("%q is not a number%s", n.Value, quotedHint(n))
+		return 0, fmt.Errorf("%s is not a number%s", shown(n.Value), quotedHint(n))
 	}
 	var f float64
 	if err := n.Decode(&f); err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
-		return 0, fmt.Errorf("%q is not a finite number", n.Value)
+		return 0, fmt.Errorf("%s is not a finite number", shown(n.Value))
 	}
 	return f, nil
 }
@@ -449,11 +469,11 @@ func boolValue(key string, v *yaml.Node) (*bool, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!bool" {
-		return nil, badValue("%q is not true or false%s; write\n    %s: true\nor\n    %s: false", n.Value, quotedHint(n), key, key)
+		return nil, badValue("%s is not true or false%s; write\n    %s: true\nor\n    %s: false", shown(n.Value), quotedHint(n), key, key)
 	}
 	var b bool
 	if err := n.Decode(&b); err != nil {
-		return nil, badValue("%q is not true or false", n.Value)
+		return nil, badValue("%s is not true or false", shown(n.Value))
 	}
 	return &b, nil
 }
@@ -570,14 +590,14 @@ func ParseNamedPath(s string) (name, path string, err error) {
 	const advice = "write NAME=PATH, where NAME is 1 to 40 letters, digits, '_', '-' or '.', for example gbm=models/gbm.tif"
 	i := strings.IndexByte(s, '=')
 	if i < 0 {
-		return "", "", fmt.Errorf("%w: %q has no '='; %s", ErrNamedPath, s, advice)
+		return "", "", fmt.Errorf("%w: %s has no '='; %s", ErrNamedPath, shown(s), advice)
 	}
 	name, path = strings.TrimSpace(s[:i]), strings.TrimSpace(s[i+1:])
 	if name == "" {
-		return "", "", fmt.Errorf("%w: %q has no NAME before '='; %s", ErrNamedPath, s, advice)
+		return "", "", fmt.Errorf("%w: %s has no NAME before '='; %s", ErrNamedPath, shown(s), advice)
 	}
 	if !nameRE.MatchString(name) {
-		return "", "", fmt.Errorf("%w: the name %q in %q is not allowed; %s", ErrNamedPath, name, s, advice)
+		return "", "", fmt.Errorf("%w: the name %s in %s is not allowed; %s", ErrNamedPath, shown(name), shown(s), advice)
 	}
 	if path == "" {
 		return "", "", fmt.Errorf("%w: %q has no PATH after '='; %s", ErrNamedPath, s, advice)
@@ -599,13 +619,13 @@ func ParseFloatList(flag, s string) ([]float64, error) {
 	for i, p := range parts {
 		p = strings.TrimSpace(p)
 		if p == "" {
-			return nil, fmt.Errorf("%w: --%s: item %d of %q is empty; give numbers separated by commas, "+
-				"for example --%s=%s", ErrFloatList, flag, i+1, s, flag, listExample(flag))
+			return nil, fmt.Errorf("%w: --%s: item %d of %s is empty; give numbers separated by commas, "+
+				"for example --%s=%s", ErrFloatList, flag, i+1, shown(s), flag, listExample(flag))
 		}
 		v, err := parseNumber(p, false)
 		if err != nil {
-			return nil, fmt.Errorf("%w: --%s: item %d %q is not a finite number; give numbers separated by commas "+
-				"with a dot as decimal separator, for example --%s=%s", ErrFloatList, flag, i+1, p, flag, listExample(flag))
+			return nil, fmt.Errorf("%w: --%s: item %d %s is not a finite number; give numbers separated by commas "+
+				"with a dot as decimal separator, for example --%s=%s", ErrFloatList, flag, i+1, shown(p), flag, listExample(flag))
 		}
 		out = append(out, v)
 	}

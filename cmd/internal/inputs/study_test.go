@@ -177,7 +177,7 @@ func TestParseStudyErrors(t *testing.T) {
 		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
 		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
 		{"syntax error tab", "iterations: 10\n\tseed: 3\n", ErrStudySyntax, 0, "", []string{"near line 2", "spaces (not tabs)"}},
-		{"syntax error without line", "a: b: c\n", ErrStudySyntax, 0, "", []string{"mapping values are not allowed", "key: value"}},
+		{"syntax error without line", "a: b: c\n", ErrStudySyntax, 0, "", []string{"a second ': ' on one line", "key: value"}},
 		{"syntax error unclosed", "e: [1, 2\n", ErrStudySyntax, 0, "", []string{"key: value"}},
 		{"two documents", "seed: 1\n---\nseed: 2\n", ErrStudySyntax, 2, "", []string{"second YAML document", "'---'"}},
 		{"root is a list", "- seed: 1\n", ErrStudySyntax, 1, "", []string{"found a list", "iterations: 1000"}},
@@ -329,6 +329,11 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		_, err := LoadStudy(filepath.Join(sub, "none.yaml"))
 		if !errors.Is(err, os.ErrNotExist) || !strings.HasPrefix(err.Error(), "inputs: ") {
 			t.Fatalf("got %v", err)
+		}
+		// In our words, as for a study table (it was "cannot read study
+		// file: open ...: no such file or directory").
+		if want := "study file " + filepath.Join(sub, "none.yaml") + " does not exist; check the path"; !strings.Contains(err.Error(), want) || strings.Contains(err.Error(), "open ") {
+			t.Errorf("got %v, want %q", err, want)
 		}
 	})
 }
