@@ -272,13 +272,13 @@ func DecodePartial(data []byte, source string) (*PartialFile, error) {
 		return nil, bad("does not start with %q; give the partial files that `run --shard` wrote", partialMagic)
 	}
 	if len(data) < 6 {
-		return nil, bad("truncated inside the version")
+		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
 	}
 	if v := binary.LittleEndian.Uint16(data[4:]); v != PartialFormatVersion {
 		return nil, bad("format %d, this areasweep reads format %d; merge with the areasweep version that wrote the shards", v, PartialFormatVersion)
 	}
 	if len(data) < 6+4+4+sha256.Size {
-		return nil, bad("truncated (%d bytes)", len(data))
+		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
 	}
 	n := len(data) - sha256.Size
 	if s := sha256.Sum256(data[:n]); !bytes.Equal(s[:], data[n:]) {

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -207,8 +208,13 @@ func TestDecodePartialRefuses(t *testing.T) {
 		t.Fatalf("round trip changed the file: %+v", back)
 	}
 	for n := range len(good) {
-		if _, err := DecodePartial(good[:n], "f"); !errors.Is(err, ErrPartialFormat) {
+		_, err := DecodePartial(good[:n], "f")
+		if !errors.Is(err, ErrPartialFormat) {
 			t.Fatalf("truncated to %d: %v", n, err)
+		}
+		// Cut after the magic bytes: the message says what to do.
+		if n >= 4 && !strings.Contains(err.Error(), "shard again") {
+			t.Errorf("truncated to %d: %v, want it to say to run the shard again", n, err)
 		}
 	}
 	for i := range len(good) {
