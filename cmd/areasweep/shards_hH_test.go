@@ -1,0 +1,173 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// TestMergeRefusesGoneInput: an input the shards recorded by its absolute
+// path and removed or renamed before the merge is refused naming the
+// partial file, the input and what to do (restore it or run the shards
+// again: the merge takes no input flags, so "check the path" would not
+// help). Exit 2, --out not created.
+func TestMergeRefusesGoneInput(t *testing.T) {
+	s := newSmallStudy(t)
+	shards := runShards(t, s, filepath.Join(s.dir, "shards"), 2)
+	first := filepath.Join(shards[0], "shard-1-of-2.aspf")
+
+	cases := []struct {
+		name    string
+		gone    string // renamed away during the merge
+		shards  []string
+		want    []string
+		wantNot []string
+	}{
+		{"model renamed", s.model, shards,
+			[]string{first, s.model, "recorded by the shards, does not exist", "removed or renamed since the shards ran", "restore it", "run the shards again"}, []string{"check the path"}},
+		{"region removed", s.region, shards,
+			[]string{first, s.region, "removed or renamed since the shards ran"}, []string{"check the path"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if tc.gone != "" {
+				if err := os.Rename(tc.gone, tc.gone+".away"); err != nil {
+					t.Fatal(err)
+				}
+				defer os.Rename(tc.gone+".away", tc.gone)
+			}
+			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
+			_, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", out}, tc.shards...)...)
+			if code != 2 {
+				t.Fatalf("exit %d, want 2: %s", code, se)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(se, w) {
+					t.Errorf("message lacks %q: %s", w, se)
+				}
+			}
+			for _, w := range tc.wantNot {
+				if strings.Contains(se, w) {
+					t.Errorf("message has %q: %s", w, se)
+				}
+			}
+			if _, err := os.Stat(out); err == nil {
+				t.Errorf("%s was created", out)
+			}
+		})
+	}
+	// The inputs back in place: the same shards merge.
+	if _, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", filepath.Join(s.dir, "merged")}, shards...)...); code != 0 {
+		t.Fatalf("merge with the inputs restored: exit %d: %s", code, se)
+	}
+}
+
+// TestMergeRefusesFolderNamedAspf: a sub-folder whose name ends in .aspf,
+// in a folder of partial files given to merge, is refused as a folder
+// (named, with what to do), not with the system's "is a directory" read
+// error; exit 2, --out not created.
+func TestMergeRefusesFolderNamedAspf(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := filepath.Join(s.dir, "shards")
+	for i := 1; i <= 2; i++ {
+		if _, se, code := runBin(t, s.shardArgs(t, dir, "--shard", fmt.Sprintf("%d/2", i), "--force")...); code != 0 {
+			t.Fatalf("shard %d: exit %d: %s", i, code, se)
+		}
+	}
+	sub := filepath.Join(dir, "old.aspf")
+	if err := os.Mkdir(sub, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(s.dir, "merged")
+	_, se, code := runBin(t, "merge", "--quiet", "--out", out, dir)
+	if code != 2 {
+		t.Fatalf("exit %d, want 2: %s", code, se)
+	}
+	for _, w := range []string{sub, "is a folder, not a partial file", "move it out of " + dir} {
+		if !strings.Contains(se, w) {
+			t.Errorf("message lacks %q: %s", w, se)
+		}
+	}
+	if strings.Contains(se, "is a directory") {
+		t.Errorf("message has the system's read error: %s", se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Errorf("%s was created", out)
+	}
+}
+
+// TestShardRefusesPipedInput: the merge reads every input again, so a
+// shard refuses, before any work, an occurrence table it could read only
+// once: a pipe on a file descriptor (a shell's <(...), /dev/fd/N),
+// standard input, and a named pipe (a merge's read would wait for a
+// writer). Exit 2, --out not created.
+func TestShardRefusesPipedInput(t *testing.T) {
+	s := newSmallStudy(t)
+	occ, err := os.ReadFile(s.occ)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fifo := filepath.Join(s.dir, "fifo.csv")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name, path string
+		want       []string
+	}{
+		{"descriptor", "/dev/fd/3", []string{"/dev/fd/3", "standard input or a pipe", "save it as a file and run the shards with that file"}},
+		{"standard input", "/dev/stdin", []string{"/dev/stdin", "standard input or a pipe", "save it as a file"}},
+		{"named pipe", fifo, []string{fifo, "is a named pipe", "save it as a file"}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
+			args := append(s.shardArgs(t, out), "--shard", "1/2")
+			for k := range args {
+				if args[k] == s.occ {
+					args[k] = tc.path
+				}
+			}
+			// A shard that reads the named pipe would wait for a writer:
+			// it is stopped after a minute.
+			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
+			defer cancel()
+			cmd := exec.CommandContext(ctx, areasweepBin, args...)
+			var se bytes.Buffer
+			cmd.Stderr = &se
+			// The table is written into a pipe given as descriptor 3 and
+			// as standard input.
+			r, w, err := os.Pipe()
+			if err != nil {
+				t.Fatal(err)
+			}
+			cmd.ExtraFiles = []*os.File{r}
+			cmd.Stdin = r
+			if err := cmd.Start(); err != nil {
+				t.Fatal(err)
+			}
+			r.Close()
+			w.Write(occ)
+			w.Close()
+			code := exitCode(cmd.Wait())
+			if code != 2 {
+				t.Fatalf("shard: exit %d, want 2: %s", code, se.String())
+			}
+			for _, w := range append(tc.want, "--shard") {
+				if !strings.Contains(se.String(), w) {
+					t.Errorf("message lacks %q: %s", w, se.String())
+				}
+			}
+			if _, err := os.Stat(out); err == nil {
+				t.Errorf("%s was created", out)
+			}
+		})
+	}
+}
