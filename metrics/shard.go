@@ -404,11 +404,26 @@ func CheckShardSet(headers []ShardHeader) error {
 		}
 		byShard[h.Shard] = h
 	}
+	// Missing shards, three or more in a row as one range ("3-9"): a
+	// merge of 1000 shards missing half would otherwise list 500 numbers.
 	var missing []string
 	for i := 1; i <= ref.Shards; i++ {
-		if byShard[i] == nil {
-			missing = append(missing, fmt.Sprint(i))
+		if byShard[i] != nil {
+			continue
 		}
+		j := i
+		for j < ref.Shards && byShard[j+1] == nil {
+			j++
+		}
+		switch j - i {
+		case 0:
+			missing = append(missing, fmt.Sprint(i))
+		case 1:
+			missing = append(missing, fmt.Sprint(i), fmt.Sprint(j))
+		default:
+			missing = append(missing, fmt.Sprintf("%d-%d", i, j))
+		}
+		i = j
 	}
 	if len(missing) > 0 {
 		return &ShardError{Err: ErrShardMissing, Detail: fmt.Sprintf("shard(s) %s of %d not given; run them (or find their files) and merge again", strings.Join(missing, ", "), ref.Shards)}

@@ -100,6 +100,17 @@ func TestCheckShardSetRefuses(t *testing.T) {
 			}
 		})
 	}
+	// Missing shards, three or more in a row named as a range: by
+	// construction, shards 1, 2, 5 and 10 to 27 of 50 given.
+	var some []ShardHeader
+	for _, h := range shardSet(50, 100) {
+		if h.Shard <= 2 || h.Shard == 5 || h.Shard >= 10 && h.Shard <= 27 {
+			some = append(some, h)
+		}
+	}
+	if err := CheckShardSet(some); !errors.Is(err, ErrShardMissing) || !strings.Contains(err.Error(), "shard(s) 3, 4, 6-9, 28-50 of 50 not given") {
+		t.Errorf("shards 1, 2, 5, 10-27 of 50: %v", err)
+	}
 	// Order does not matter.
 	hs := shardSet(7, 50)
 	rand.New(rand.NewPCG(1, 2)).Shuffle(len(hs), func(i, j int) { hs[i], hs[j] = hs[j], hs[i] })

@@ -212,7 +212,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	}
 	if err := metrics.CheckShardSet(headers); err != nil {
 		if errors.Is(err, metrics.ErrShardMissing) {
-			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
+			err = fmt.Errorf("%w (given: %s)", err, givenList(files))
 		}
 		nameSettings(err, files, headers)
 		mixedSplits(err, files, headers)
@@ -243,6 +243,17 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// givenList names the partial files given, for the refusal of missing
+// shards: the first five and how many more, so that a merge of a
+// thousand shards does not print a thousand paths.
+func givenList(files []string) string {
+	const shown = 5
+	if len(files) <= shown {
+		return strings.Join(files, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(files[:shown], ", "), len(files)-shown)
 }
 
 // nameSettings adds to CheckShardSet's "differ in settings" which
