@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
 	"fmt"
 	"os"
 	"os/exec"
@@ -167,6 +168,98 @@ func TestShardRefusesPipedInput(t *testing.T) {
 			}
 			if _, err := os.Stat(out); err == nil {
 				t.Errorf("%s was created", out)
+			}
+		})
+	}
+}
+
+// TestRunPipedOccurrences: a run reads an occurrence table given as a
+// pipe (README: "the occurrence table may be a pipe, such as a shell's
+// <(...)") once: results.json records the SHA-256 of the table's bytes
+// (computed here with crypto/sha256 from the file), not that of the empty
+// rest of the pipe, and the scores are those of the run from the file. A
+// named pipe is read once too (a second open waited for a writer
+// forever; the run is stopped after a minute).
+func TestRunPipedOccurrences(t *testing.T) {
+	s := newSmallStudy(t)
+	occ, err := os.ReadFile(s.occ)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprintf("%x", sha256.Sum256(occ))
+	plain := filepath.Join(s.dir, "plain")
+	if _, se, code := runBin(t, s.args(plain)...); code != 0 {
+		t.Fatalf("run from the file: exit %d: %s", code, se)
+	}
+	scores, _ := os.ReadFile(filepath.Join(plain, "scores.csv"))
+	fifo := filepath.Join(s.dir, "fifo.csv")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct{ name, path string }{{"descriptor", "/dev/fd/3"}, {"named pipe", fifo}} {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
+			args := s.args(out)
+			for k := range args {
+				if args[k] == s.occ {
+					args[k] = tc.path
+				}
+			}
+			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
+			defer cancel()
+			cmd := exec.CommandContext(ctx, areasweepBin, args...)
+			var se bytes.Buffer
+			cmd.Stderr = &se
+			r, w, err := os.Pipe()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if tc.path == fifo {
+				r.Close()
+				w.Close()
+			} else {
+				cmd.ExtraFiles = []*os.File{r}
+			}
+			if err := cmd.Start(); err != nil {
+				t.Fatal(err)
+			}
+			done := make(chan struct{})
+			if tc.path == fifo {
+				// Opening the named pipe for writing waits for the run
+				// to open it for reading (or for the open below, once
+				// the run has ended).
+				go func() {
+					defer close(done)
+					if f, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+						f.Write(occ)
+						f.Close()
+					}
+				}()
+			} else {
+				r.Close()
+				w.Write(occ)
+				w.Close()
+				close(done)
+			}
+			code := exitCode(cmd.Wait())
+			if f, err := os.OpenFile(fifo, os.O_RDONLY|syscall.O_NONBLOCK, 0); err == nil {
+				f.Close()
+			}
+			<-done
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, se.String())
+			}
+			var got string
+			for _, in := range loadResults(t, out).Inputs {
+				if in.Role == "occurrences" {
+					got = in.SHA256
+				}
+			}
+			if got != want {
+				t.Errorf("occurrences recorded with SHA-256 %s, want %s (the table's)", got, want)
+			}
+			if b, _ := os.ReadFile(filepath.Join(out, "scores.csv")); len(scores) == 0 || !bytes.Equal(b, scores) {
+				t.Error("scores.csv differs from the run's from the file")
 			}
 		})
 	}
