@@ -12,6 +12,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/airbusgeo/godal"
 )
 
 // TestMergeRefusesGoneInput: an input the shards recorded by its absolute
@@ -262,5 +264,47 @@ func TestRunPipedOccurrences(t *testing.T) {
 				t.Error("scores.csv differs from the run's from the file")
 			}
 		})
+	}
+}
+
+// TestMergeRefusesChangedVRTSource: a model given as a virtual raster
+// whose source file changed after the shards ran is refused naming the
+// VRT, its source and that kind of file among those the merge compares;
+// exit 2, --out not created.
+func TestMergeRefusesChangedVRTSource(t *testing.T) {
+	s := newSmallStudy(t)
+	data, err := os.ReadFile(s.model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	srcPath := filepath.Join(s.dir, "source.tif")
+	os.WriteFile(srcPath, data, 0o644)
+	src, err := godal.Open(srcPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vrt := filepath.Join(s.dir, "virtual.vrt")
+	v, err := src.Translate(vrt, []string{"-of", "VRT"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v.Close()
+	src.Close()
+	shards := runShards(t, s, filepath.Join(s.dir, "shards"), 2, "--model", "v="+vrt)
+	// One byte more at the end of the source: another SHA-256, the same
+	// raster for GDAL.
+	os.WriteFile(srcPath, append(bytes.Clone(data), 0), 0o644)
+	out := filepath.Join(s.dir, "merged")
+	_, se, code := runBin(t, append([]string{"merge", "--quiet", "--out", out}, shards...)...)
+	if code != 2 {
+		t.Fatalf("exit %d, want 2: %s", code, se)
+	}
+	for _, w := range []string{"model:v", vrt, "source.tif", "not those the shards read", "a virtual raster's source", "run the shards again"} {
+		if !strings.Contains(se, w) {
+			t.Errorf("message lacks %q: %s", w, se)
+		}
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Errorf("%s was created", out)
 	}
 }

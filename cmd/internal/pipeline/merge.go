@@ -404,7 +404,7 @@ func (s *Study) checkExpectedInputs() error {
 		case got[i].SHA256 != want[i].SHA256:
 			return fault.BadInput(fmt.Errorf("%s %s changed since the shards ran (SHA-256 %s, the shards read %s); restore the file or run the shards again", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12]))
 		case sidecarsDigest(got[i]) != want[i].Sidecars:
-			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))
+			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file, or a virtual raster's source, added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))
 		}
 	}
 	return nil
