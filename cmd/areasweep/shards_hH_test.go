@@ -308,3 +308,50 @@ func TestMergeRefusesChangedVRTSource(t *testing.T) {
 		t.Errorf("%s was created", out)
 	}
 }
+
+// TestBatchShardPartialFileDamaged: a shard task that finished (its
+// completion marker written) but whose partial file was damaged or
+// removed since is run again by the next batch, which then merges: the
+// merge refused the file on every re-run ("running the same command again
+// retries them" did not). The study equals a plain run byte for byte.
+func TestBatchShardPartialFileDamaged(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(t.TempDir(), "sharded")
+	for i := 1; i <= 2; i++ {
+		if _, se, code := runBin(t, "batch", table, "--out", out, "--shards", "2", "--only", "alpha", "--shard", fmt.Sprint(i)); code != 0 {
+			t.Fatalf("shard task %d: exit %d: %s", i, code, se)
+		}
+	}
+	shardFile := func(i int) string {
+		return filepath.Join(out, ".areasweep-batch", "shards", "alpha", fmt.Sprint(i), fmt.Sprintf("shard-%d-of-2.aspf", i))
+	}
+	data, err := os.ReadFile(shardFile(1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	data[len(data)/2] ^= 1
+	if err := os.WriteFile(shardFile(1), data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Remove(shardFile(2)); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code := runBin(t, "batch", table, "--out", out, "--shards", "2", "--only", "alpha")
+	if code != 0 {
+		t.Fatalf("exit %d, want 0: %s", code, se)
+	}
+	for _, w := range []string{"alpha: shard 1/2 started", "alpha: shard 2/2 started", "alpha: merge of 2 shards finished"} {
+		if !strings.Contains(se, w) {
+			t.Errorf("stderr lacks %q: %s", w, se)
+		}
+	}
+	plain := plainRun(t, s, "9", "m="+s.model, "sq="+s.model2)
+	for _, f := range []string{"results.json", "scores.csv"} {
+		want, _ := os.ReadFile(filepath.Join(plain, f))
+		got, err := os.ReadFile(filepath.Join(out, "alpha", f))
+		if err != nil || len(want) == 0 || !bytes.Equal(got, want) {
+			t.Errorf("alpha/%s differs from a plain run (%v)", f, err)
+		}
+	}
+}
