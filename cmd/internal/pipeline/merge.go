@@ -89,7 +89,8 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		}
 		if filepath.IsAbs(p) {
 			if _, err := os.Stat(p); errors.Is(err, fs.ErrNotExist) {
-				return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded by the shards, does not exist: it was removed or renamed since the shards ran; "+
+				return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded by the shards, does not exist: it was removed or renamed since the shards ran "+
+					"(or shard 1 ran on a machine where the inputs have other paths: the merge reads them at shard 1's paths); "+
 					"restore it at that path, or run the shards again", first.Source, p))
 			}
 			continue
