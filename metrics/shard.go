@@ -272,13 +272,13 @@ func DecodePartial(data []byte, source string) (*PartialFile, error) {
 		return nil, bad("does not start with %q; give the partial files that `run --shard` wrote", partialMagic)
 	}
 	if len(data) < 6 {
-		return nil, bad("truncated inside the version")
+		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
 	}
 	if v := binary.LittleEndian.Uint16(data[4:]); v != PartialFormatVersion {
 		return nil, bad("format %d, this areasweep reads format %d; merge with the areasweep version that wrote the shards", v, PartialFormatVersion)
 	}
 	if len(data) < 6+4+4+sha256.Size {
-		return nil, bad("truncated (%d bytes)", len(data))
+		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
 	}
 	n := len(data) - sha256.Size
 	if s := sha256.Sum256(data[:n]); !bytes.Equal(s[:], data[n:]) {
@@ -404,11 +404,26 @@ func CheckShardSet(headers []ShardHeader) error {
 		}
 		byShard[h.Shard] = h
 	}
+	// Missing shards, three or more in a row as one range ("3-9"): a
+	// merge of 1000 shards missing half would otherwise list 500 numbers.
 	var missing []string
 	for i := 1; i <= ref.Shards; i++ {
-		if byShard[i] == nil {
-			missing = append(missing, fmt.Sprint(i))
+		if byShard[i] != nil {
+			continue
 		}
+		j := i
+		for j < ref.Shards && byShard[j+1] == nil {
+			j++
+		}
+		switch j - i {
+		case 0:
+			missing = append(missing, fmt.Sprint(i))
+		case 1:
+			missing = append(missing, fmt.Sprint(i), fmt.Sprint(j))
+		default:
+			missing = append(missing, fmt.Sprintf("%d-%d", i, j))
+		}
+		i = j
 	}
 	if len(missing) > 0 {
 		return &ShardError{Err: ErrShardMissing, Detail: fmt.Sprintf("shard(s) %s of %d not given; run them (or find their files) and merge again", strings.Join(missing, ", "), ref.Shards)}

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -98,6 +99,17 @@ func TestCheckShardSetRefuses(t *testing.T) {
 				t.Fatalf("message %q lacks %q", err, c.words)
 			}
 		})
+	}
+	// Missing shards, three or more in a row named as a range: by
+	// construction, shards 1, 2, 5 and 10 to 27 of 50 given.
+	var some []ShardHeader
+	for _, h := range shardSet(50, 100) {
+		if h.Shard <= 2 || h.Shard == 5 || h.Shard >= 10 && h.Shard <= 27 {
+			some = append(some, h)
+		}
+	}
+	if err := CheckShardSet(some); !errors.Is(err, ErrShardMissing) || !strings.Contains(err.Error(), "shard(s) 3, 4, 6-9, 28-50 of 50 not given") {
+		t.Errorf("shards 1, 2, 5, 10-27 of 50: %v", err)
 	}
 	// Order does not matter.
 	hs := shardSet(7, 50)
@@ -207,8 +219,13 @@ func TestDecodePartialRefuses(t *testing.T) {
 		t.Fatalf("round trip changed the file: %+v", back)
 	}
 	for n := range len(good) {
-		if _, err := DecodePartial(good[:n], "f"); !errors.Is(err, ErrPartialFormat) {
+		_, err := DecodePartial(good[:n], "f")
+		if !errors.Is(err, ErrPartialFormat) {
 			t.Fatalf("truncated to %d: %v", n, err)
+		}
+		// Cut after the magic bytes: the message says what to do.
+		if n >= 4 && !strings.Contains(err.Error(), "shard again") {
+			t.Errorf("truncated to %d: %v, want it to say to run the shard again", n, err)
 		}
 	}
 	for i := range len(good) {

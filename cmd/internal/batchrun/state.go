@@ -1,7 +1,10 @@
 package batchrun
 
 import (
+	"errors"
 	"fmt"
+	"io/fs"
+	"os"
 	"path/filepath"
 	"strings"
 
@@ -9,6 +12,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/metrics"
 )
 
 // studyState is what is known of one study before the batch runs it.
@@ -142,9 +146,26 @@ func markerInputs(files []pipeline.InputFile) []batch.InputFile {
 	return out
 }
 
-// shardState reads the marker of shard k of st (see markerState). A
+// shardState reads the marker of shard k of n of st (see markerState). A
 // shard's folder is the batch's own: a stale shard runs again without
-// --force.
-func shardState(out string, st *study, k int) (studyState, staleness, error) {
-	return st.markerState(shardDir(out, st.id, k))
+// --force. A shard whose marker says done but whose partial file is
+// missing or damaged (removed, cut short or changed since) is stale too:
+// the merge would refuse it on every re-run.
+func shardState(out string, st *study, k, n int) (studyState, staleness, error) {
+	dir := shardDir(out, st.id, k)
+	s, why, err := st.markerState(dir)
+	if err != nil || s != stateDone {
+		return s, why, err
+	}
+	f := filepath.Join(dir, pipeline.ShardFileName(k, n))
+	data, err := os.ReadFile(f)
+	if err == nil {
+		_, err = metrics.DecodePartial(data, f)
+	} else if errors.Is(err, fs.ErrNotExist) {
+		err = fmt.Errorf("%s was removed", f)
+	}
+	if err != nil {
+		return stateStale, staleness{"by a run whose partial file is missing or damaged since (" + fault.UserText(err) + ")", "remove the folder"}, nil
+	}
+	return stateDone, staleness{}, nil
 }

@@ -100,7 +100,7 @@ func runShards(ctx context.Context, o *Options, studies []*study, todo []int, er
 			if o.SummaryOnly || (o.Shard > 0 && k != o.Shard) {
 				continue
 			}
-			switch s, _, err := shardState(o.Out, st, k); {
+			switch s, _, err := shardState(o.Out, st, k, o.Shards); {
 			case err != nil:
 				errs[i] = err
 			case s == stateDone:
@@ -124,7 +124,7 @@ func mergeShards(ctx context.Context, o *Options, studies []*study, todo []int, 
 		var missing []int
 		var stale error
 		for k := 1; k <= o.Shards; k++ {
-			s, why, _ := shardState(o.Out, studies[i], k)
+			s, why, _ := shardState(o.Out, studies[i], k, o.Shards)
 			if s != stateDone {
 				missing = append(missing, k)
 			}

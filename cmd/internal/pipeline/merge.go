@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
@@ -75,10 +76,23 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	// one is relative to the folder shard 1 ran in.
 	// When some relative input is found and another is not, the merge
 	// runs in the right folder and that input was removed or renamed.
+	// An absolute one that no longer exists was removed or renamed since
+	// the shards ran.
 	var missing []string
 	found := false
 	for _, p := range o.InputPaths() {
-		if p == "" || filepath.IsAbs(p) {
+		if p == "" {
+			continue
+		}
+		if err := notRereadable(p); err != nil {
+			return nil, fault.BadInput(fmt.Errorf("%s: %w", first.Source, err))
+		}
+		if filepath.IsAbs(p) {
+			if _, err := os.Stat(p); errors.Is(err, fs.ErrNotExist) {
+				return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded by the shards, does not exist: it was removed or renamed since the shards ran "+
+					"(or shard 1 ran on a machine where the inputs have other paths: the merge reads them at shard 1's paths); "+
+					"restore it at that path, or run the shards again", first.Source, p))
+			}
 			continue
 		}
 		if _, err := os.Stat(p); err != nil {
@@ -113,6 +127,22 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	return s.Finish(ctx)
 }
 
+// notRereadable refuses an input path p that a merge cannot read again
+// as its shards read it: standard input or a pipe (a shell's <(...),
+// recorded as /dev/fd/N), a device or socket, or a named pipe (whose read
+// would wait for a writer).
+func notRereadable(p string) error {
+	if p == "/dev/stdin" || strings.HasPrefix(p, "/dev/fd/") || strings.HasPrefix(p, "/proc/") && strings.Contains(p, "/fd/") {
+		return fmt.Errorf("the input %s is standard input or a pipe (a shell's <(...)), which a merge cannot read again as the shards read it; "+
+			"save it as a file and run the shards with that file", p)
+	}
+	if st, err := os.Stat(p); err == nil && !st.IsDir() && !st.Mode().IsRegular() {
+		return fmt.Errorf("the input %s is a named pipe, device or socket, which a merge cannot read again as the shards read it; "+
+			"save it as a file and run the shards with that file", p)
+	}
+	return nil
+}
+
 // shardPaths expands folders into their *.aspf files (sorted) and checks
 // that every path exists.
 func shardPaths(args []string) ([]string, error) {
@@ -134,6 +164,11 @@ func shardPaths(args []string) ([]string, error) {
 			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", a))
 		}
 		sort.Strings(found)
+		for _, f := range found {
+			if st, err := os.Stat(f); err == nil && st.IsDir() {
+				return nil, fault.BadInput(fmt.Errorf("%s in folder %s is a folder, not a partial file; move it out of %s, or give the shards' .aspf files instead of the folder", f, a, a))
+			}
+		}
 		files = append(files, found...)
 	}
 	return files, nil
@@ -178,7 +213,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	}
 	if err := metrics.CheckShardSet(headers); err != nil {
 		if errors.Is(err, metrics.ErrShardMissing) {
-			err = fmt.Errorf("%w (given: %s)", err, strings.Join(files, ", "))
+			err = fmt.Errorf("%w (given: %s)", err, givenList(files))
 		}
 		nameSettings(err, files, headers)
 		mixedSplits(err, files, headers)
@@ -209,6 +244,17 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// givenList names the partial files given, for the refusal of missing
+// shards: the first five and how many more, so that a merge of a
+// thousand shards does not print a thousand paths.
+func givenList(files []string) string {
+	const shown = 5
+	if len(files) <= shown {
+		return strings.Join(files, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(files[:shown], ", "), len(files)-shown)
 }
 
 // nameSettings adds to CheckShardSet's "differ in settings" which
@@ -359,7 +405,7 @@ func (s *Study) checkExpectedInputs() error {
 		case got[i].SHA256 != want[i].SHA256:
 			return fault.BadInput(fmt.Errorf("%s %s changed since the shards ran (SHA-256 %s, the shards read %s); restore the file or run the shards again", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12]))
 		case sidecarsDigest(got[i]) != want[i].Sidecars:
-			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))
+			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file, or a virtual raster's source, added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))
 		}
 	}
 	return nil

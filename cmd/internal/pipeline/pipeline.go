@@ -96,6 +96,9 @@ type Study struct {
 	// rawDegrees: the table's coordinates, declared projected, all lie in
 	// degree ranges.
 	rawDegrees bool
+	// occPiped is the occurrence table's record when it was read from a
+	// pipe (readOccurrences): its checksum is of the bytes read then.
+	occPiped *InputFile
 	// sums gives a pass's sums (Stream unless SetSums replaced it).
 	sums SumsFunc
 	// rows, when set, restricts Stream to those grid rows (a shard's).

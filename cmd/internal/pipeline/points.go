@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
@@ -332,7 +333,7 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 			defer toLL.Close()
 		}
 	}
-	recs, err = inputs.ReadOccurrences(o.Occurrences, geographic)
+	recs, err = s.readOccurrences(geographic)
 	if err != nil {
 		return nil, nil, nil, fault.BadInput(err)
 	}
@@ -351,6 +352,34 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 		}
 	}
 	return lons, lats, recs, nil
+}
+
+// readOccurrences reads the occurrence table. One given as a pipe (a
+// shell's <(...), standard input from a pipe, a named pipe) can be read
+// only once: it is read into memory here, parsed from there, and its
+// checksum is taken of those bytes (s.occPiped, for checksums). Read
+// again, the pipe would be empty (results.json recorded the SHA-256 of
+// nothing) or, a named pipe, wait for a writer forever.
+func (s *Study) readOccurrences(geographic bool) ([]inputs.Record, error) {
+	path := s.o.Occurrences
+	st, err := os.Stat(path)
+	if err != nil || st.Mode()&os.ModeNamedPipe == 0 {
+		return inputs.ReadOccurrences(path, geographic)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot open occurrence table: %w", err)
+	}
+	defer f.Close()
+	// One byte past the limit, for the parser to refuse the table as too
+	// large in its own words.
+	data, err := io.ReadAll(io.LimitReader(f, inputs.MaxOccurrenceBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("occurrences: %s cannot be read (%w)", path, outdir.Cause(err))
+	}
+	sum := sha256.Sum256(data)
+	s.occPiped = &InputFile{Path: path, Size: int64(len(data)), ModTime: st.ModTime().UnixNano(), SHA256: hex.EncodeToString(sum[:])}
+	return inputs.ParseOccurrences(bytes.NewReader(data), path, geographic)
 }
 
 // readPoints reads the occurrence table, places each record on the grid,
@@ -621,7 +650,13 @@ func (s *Study) checksums() error {
 		go func() {
 			defer func() { <-sem; wg.Done() }()
 			r := report.Input{Role: in.role, Path: s.recordedPath(in.path)}
-			f, err := fileSHA256(in.path)
+			var f InputFile
+			var err error
+			if in.role == "occurrences" && s.occPiped != nil {
+				f = *s.occPiped // a pipe, read once (readOccurrences)
+			} else {
+				f, err = fileSHA256(in.path)
+			}
 			if errs[i] = err; err != nil {
 				return
 			}

@@ -165,6 +165,16 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 	if n < 1 || i < 1 || i > n {
 		return fault.BadInput(fmt.Errorf("--shard %d/%d: give I/N with 1 <= I <= N", i, n))
 	}
+	// The merge reads every input again: one it cannot (a pipe) is
+	// refused before the shard's work.
+	for _, p := range o.InputPaths() {
+		if p == "" {
+			continue
+		}
+		if err := notRereadable(p); err != nil {
+			return fault.BadInput(fmt.Errorf("--shard: %w", err))
+		}
+	}
 	o.Shard = true
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {

@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"encoding/json"
+	"fmt"
 	"reflect"
 	"strings"
 	"testing"
@@ -114,5 +115,29 @@ func TestSettingsHash(t *testing.T) {
 	}
 	if len(h) != 64 || strings.Trim(h, "0123456789abcdef") != "" {
 		t.Errorf("hash %q is not 64 lower-case hex digits", h)
+	}
+}
+
+// TestGivenList: the missing-shards refusal names at most five of the
+// files given, then how many more (expected strings by construction).
+func TestGivenList(t *testing.T) {
+	files := func(n int) []string {
+		var f []string
+		for i := 1; i <= n; i++ {
+			f = append(f, fmt.Sprintf("s%d/shard-%d-of-900.aspf", i, i))
+		}
+		return f
+	}
+	for _, tc := range []struct {
+		n    int
+		want string
+	}{
+		{1, "s1/shard-1-of-900.aspf"},
+		{5, "s1/shard-1-of-900.aspf, s2/shard-2-of-900.aspf, s3/shard-3-of-900.aspf, s4/shard-4-of-900.aspf, s5/shard-5-of-900.aspf"},
+		{899, "s1/shard-1-of-900.aspf, s2/shard-2-of-900.aspf, s3/shard-3-of-900.aspf, s4/shard-4-of-900.aspf, s5/shard-5-of-900.aspf and 894 more"},
+	} {
+		if got := givenList(files(tc.n)); got != tc.want {
+			t.Errorf("%d files: %q, want %q", tc.n, got, tc.want)
+		}
 	}
 }
