@@ -255,7 +255,7 @@ func TestMergeRefusesEmptyModel(t *testing.T) {
 		if r.code != 2 {
 			t.Errorf("%s: exit %d, want 2: %s", what, r.code, r.se)
 		}
-		for _, w := range []string{"model void", "empty.tif", "every cell", "no data"} {
+		for _, w := range []string{"null void", "empty.tif", "every cell", "no data"} {
 			if !strings.Contains(r.se, w) {
 				t.Errorf("%s: message lacks %q: %s", what, w, r.se)
 			}
