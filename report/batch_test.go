@@ -575,7 +575,7 @@ func TestSummaryNotJudged(t *testing.T) {
 
 // TestSummaryEdgeSentences checks the summary's sentences on batches found
 // wrong by running `areasweep batch` on small generated studies and
-// checking every number against the studies' results.json (HF's audit):
+// checking every number against the studies' results.json (an audit of the summary):
 // one study only, a failed study, base extents of one area, and a study
 // that scored no extent at all (a constant model: Analyze leaves
 // Sensitivity.BaseExtent empty, and no extent stands in for the base).

@@ -87,7 +87,7 @@ func TestValidateRefuses(t *testing.T) {
 		}, "col -1 is not a cell of the"},
 		// A points list emptied or cut by hand dropped the points from
 		// the maps and the near-training-point warning without a word
-		// (HJ's audit); the sample's point_counts count its points.
+		// (an audit of hand-edited files); the sample's point_counts count its points.
 		{"points emptied", func(r *Results) { r.Points = nil }, "point_counts.train: 50, but points lists 0 scored training points"},
 		{"a test point removed", func(r *Results) {
 			for i := range r.Points {

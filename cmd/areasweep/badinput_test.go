@@ -533,7 +533,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},
 		{"occurrences crs a bare number", f.run("--occurrences-crs", "3035"), 2, []string{"--occurrences-crs", `"3035"`, "EPSG:3035"}, "", ""},
 		{"occurrences crs not a CRS", f.run("--occurrences-crs", "lonlat"), 2, []string{"--occurrences-crs", `"lonlat"`, "EPSG:3035", "+proj="}, "", ""},
-		// PROJ's words for these reached the user whole (HG's sweep):
+		// PROJ's words for these reached the user whole (a sweep of malformed inputs):
 		// "PROJ: proj_create_operations: ..." and "Cannot find coordinate
 		// operations from `ENGCRS[...]' to `EPSG:4326'".
 		{"occurrences crs of Mars", f.run("--occurrences-crs", `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`), 2, []string{"--occurrences-crs", "cannot be transformed to WGS84", "same celestial body", "a CRS of the Earth"}, "", ""},
@@ -550,7 +550,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 <gml:featureMember><ogr:region>`)), 2, []string{"cut.gml", "its XML is not valid at line 3", "ends before its elements are closed"}, "", ""},
 		// The HDF5 library printed its whole error stack ("HDF5-DIAG:
 		// Error detected in HDF5 ...") on the terminal for a damaged HDF5
-		// file, past GDAL's error handler (HG's sweep).
+		// file, past GDAL's error handler (a sweep of malformed inputs).
 		{"model a damaged HDF5 file", f.withModel(f.file("cut.h5", "\x89HDF\r\n\x1a\n"+strings.Repeat("\x00", 600))), 2, []string{"cut.h5", "begins as an HDF5 file", "no GDAL driver reads it"}, "", ""},
 		{"region a damaged HDF5 file", f.withRegion(f.file("cut2.h5", "\x89HDF\r\n\x1a\n"+strings.Repeat("\x00", 600))), 2, []string{"region: ", "cut2.h5", "no GDAL driver reads it", "GeoPackage"}, "", ""},
 		{"no region", []string{"run", "--model", "m=" + f.model, "--occurrences", f.occ}, 2, []string{"--region"}, "", ""},

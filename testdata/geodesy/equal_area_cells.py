@@ -1,5 +1,5 @@
-# Golden values for TestEqualAreaUnitsHB and TestSphereEqualAreaHB
-# (extent/grid_units_hB_test.go): the true WGS84 area (km2) of one cell of
+# Golden values for TestEqualAreaUnits and TestSphereEqualArea
+# (extent/gridunits_test.go): the true WGS84 area (km2) of one cell of
 # each grid, as pyproj.Geod(ellps='WGS84').polygon_area_perimeter of the
 # cell outline densified K points per side (default 4096; converged to
 # about 4e-8 between 1024 and 4096 on the global Mollweide grid's top-row

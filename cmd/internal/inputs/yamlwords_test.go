@@ -8,7 +8,7 @@ import (
 )
 
 // yamlReaderPhrases are the YAML reader's own words, which must not reach
-// the user (HJ's audit: "mapping values are not allowed in this context",
+// the user (an audit of the study files: "mapping values are not allowed in this context",
 // "did not find expected key", ... were shown as they were).
 var yamlReaderPhrases = []string{"did not find", "could not find", "found unexpected", "found character", "in this context", "yaml: line", "referenced", "token", "<document start>", "end of stream", "node content", "indicator"}
 
@@ -75,10 +75,10 @@ func TestStudySyntaxInOurWords(t *testing.T) {
 	}
 }
 
-// TestYAMLWordsOfReaderHJ: the reader's problems the study files above do
+// TestYAMLWordsOfReader: the reader's problems the study files above do
 // not produce, as go.yaml.in/yaml/v3's scanner writes them (its source),
 // are said in our words too, and one it may add later plainly.
-func TestYAMLWordsOfReaderHJ(t *testing.T) {
+func TestYAMLWordsOfReader(t *testing.T) {
 	for in, want := range map[string]string{
 		": did not find expected whitespace or line break":     "a value starting with '!', '|' or '>' followed by other text",
 		": found undefined tag handle":                         "a tag (a word starting with '!')",

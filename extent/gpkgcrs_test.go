@@ -10,7 +10,7 @@ import (
 	"github.com/paulmach/orb/encoding/wkb"
 )
 
-// TestWriteLayerCRSWithoutWKT1HB writes a layer in CRSs that GDAL 3.6's
+// TestWriteLayerCRSWithoutWKT1 writes a layer in CRSs that GDAL 3.6's
 // GeoPackage driver cannot export as WKT1 (Equal Earth, EPSG:8857: "PROJ:
 // proj_as_wkt: Unsupported conversion method: Equal Earth") and stores
 // otherwise (as WKT2): GDAL raises the message and creates the layer, and
@@ -18,7 +18,7 @@ import (
 // scored everything and then failed writing extents.gpkg (exit 1). The
 // layer must be written and read back in its CRS; EPSG:4326 is the
 // control.
-func TestWriteLayerCRSWithoutWKT1HB(t *testing.T) {
+func TestWriteLayerCRSWithoutWKT1(t *testing.T) {
 	Register()
 	for _, tc := range []struct {
 		epsg int

@@ -8,10 +8,10 @@ import (
 	"areasweep/extent/vocab"
 )
 
-// TestRepeatedHeaderH26: two tables joined into one (cat a.csv b.csv)
+// TestRepeatedHeader: two tables joined into one (cat a.csv b.csv)
 // repeat the header as a record; it is named as such, not as a longitude
 // that is not a number. Tables by construction.
-func TestRepeatedHeaderH26(t *testing.T) {
+func TestRepeatedHeader(t *testing.T) {
 	for _, tc := range []struct{ name, in string }{
 		{"same spelling", "lon,lat,role\n1,2,train\n3,4,test\nlon,lat,role\n5,6,test\n"},
 		{"other case and spaces, semicolons", "Lon;Lat;Role\n1;2;train\n3;4;test\n LON ; lat ; ROLE \n5;6;test\n"},
@@ -26,9 +26,9 @@ func TestRepeatedHeaderH26(t *testing.T) {
 	checkParseError(t, err, ErrBadRole, "occ.csv", 3, "role", nil)
 }
 
-// TestListExampleH26: a bad item in --e or --thresholds is answered with
+// TestListExample: a bad item in --e or --thresholds is answered with
 // an example that flag accepts (E lies in (0,1)), not with distances.
-func TestListExampleH26(t *testing.T) {
+func TestListExample(t *testing.T) {
 	for flag, want := range map[string]string{"e": "--e=0.05,0.1", "thresholds": "--thresholds=0.25,0.5", "point-buffers": "--point-buffers=10,25,50"} {
 		for _, in := range []string{"0.05,x", "0.05,,0.1"} {
 			_, err := ParseFloatList(flag, in)
@@ -39,10 +39,10 @@ func TestListExampleH26(t *testing.T) {
 	}
 }
 
-// TestExcelSepLineH26: Excel's "sep=;" first line names the delimiter and
+// TestExcelSepLine: Excel's "sep=;" first line names the delimiter and
 // is no header; line numbers stay physical (the header is line 2). Tables
 // by construction.
-func TestExcelSepLineH26(t *testing.T) {
+func TestExcelSepLine(t *testing.T) {
 	want := []Record{{Line: 3, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}
 	for name, in := range map[string]string{
 		"semicolon, CRLF, BOM": bom + "sep=;\r\nlon;lat;role\r\n1,5;2,5;train\r\n-3;4;test\r\n",

@@ -8,7 +8,7 @@ import (
 	"github.com/airbusgeo/godal"
 )
 
-// TestSignedByteHB checks that a GeoTIFF whose Byte band declares its
+// TestSignedByte checks that a GeoTIFF whose Byte band declares its
 // bytes signed (PIXELTYPE=SIGNEDBYTE, TIFF SampleFormat 2, as GDAL before
 // 3.7 writes and opens an Int8 raster) is scored on its signed values with
 // its nodata value -128: GDAL 3.6 hands over the bytes as 0..255 and its
@@ -18,7 +18,7 @@ import (
 // np.array([156, 0, 100, 128, 255, 127, 1], np.uint8).view(np.int8)
 // = [-100, 0, 100, -128, -1, 127, 1], with -128 (the nodata value) no data.
 // A plain Byte band with the same bytes keeps 0..255.
-func TestSignedByteHB(t *testing.T) {
+func TestSignedByte(t *testing.T) {
 	stored := []float64{156, 0, 100, 128, 255, 127, 1}
 	nan := math.NaN()
 	for _, tc := range []struct {

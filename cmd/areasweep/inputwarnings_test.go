@@ -11,7 +11,7 @@ import (
 	"github.com/airbusgeo/godal"
 )
 
-// TestSuspectInputsWarnedH26: inputs that run but most likely do not say
+// TestSuspectInputsWarned: inputs that run but most likely do not say
 // what the user meant are warned about, on the terminal and in
 // results.json, each with what to do:
 //   - a latitude-longitude raster on ED50, whose coordinates are read as
@@ -25,7 +25,7 @@ import (
 //     base extent, the study's own, goes unscored).
 //
 // The plain study warns about none of these.
-func TestSuspectInputsWarnedH26(t *testing.T) {
+func TestSuspectInputsWarned(t *testing.T) {
 	s := newSmallStudy(t)
 	noNoData := filepath.Join(s.dir, "nonodata.tif")
 	{
@@ -161,11 +161,11 @@ func writeRasterCRS(t *testing.T, s *smallStudy, name string, code int) string {
 	return p
 }
 
-// TestFeatureWarningsSummedUpH26: a layer with many features without
+// TestFeatureWarningsSummedUp: a layer with many features without
 // geometry or with invalid geometry is warned about in one line per kind,
 // listing ten features and how many more, not in one line per feature
 // (thousands of lines on the terminal and in results.json).
-func TestFeatureWarningsSummedUpH26(t *testing.T) {
+func TestFeatureWarningsSummedUp(t *testing.T) {
 	s := newSmallStudy(t)
 	var feats []string
 	for i := 0; i < 30; i++ {

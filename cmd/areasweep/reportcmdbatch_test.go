@@ -7,13 +7,13 @@ import (
 	"testing"
 )
 
-// TestReportOnBatchFolderHJ: `areasweep report` given a batch's --out
+// TestReportOnBatchFolder: `areasweep report` given a batch's --out
 // (which holds the studies' folders and the summary, no results.json of
 // its own) says so and names a study's folder to give instead; it said
 // only "results.json not found". A figures/ that is a link to another
 // folder is named as a link (it was called "a file"). Both exit 2 and
 // change nothing.
-func TestReportOnBatchFolderHJ(t *testing.T) {
+func TestReportOnBatchFolder(t *testing.T) {
 	dir := t.TempDir()
 	batch := filepath.Join(dir, "runs")
 	study := filepath.Join(batch, "oak")
@@ -49,10 +49,10 @@ func TestReportOnBatchFolderHJ(t *testing.T) {
 	}
 }
 
-// TestArgCountInOurWordsHJ: report given no folder or two, and batch two
+// TestArgCountInOurWords: report given no folder or two, and batch two
 // tables, say what the command takes and what it got; cobra's "accepts 1
 // arg(s), received 2" reached the user.
-func TestArgCountInOurWordsHJ(t *testing.T) {
+func TestArgCountInOurWords(t *testing.T) {
 	for _, c := range []struct {
 		args []string
 		want string

@@ -9,7 +9,7 @@ import (
 	"github.com/airbusgeo/godal"
 )
 
-// TestRegionBuffersOfRegionReachingFarPoleH34: cases found by randomized
+// TestRegionBuffersOfRegionReachingFarPole: cases found by randomized
 // runs of `areasweep batch` and `extents` on small generated studies. A base
 // region holding both poles, on a raster in the north polar stereographic
 // EPSG:3413, takes its south pole to about 4e23 m in the raster's CRS; the
@@ -17,7 +17,7 @@ import (
 // run never finished (memory grew until it was killed). Without buffers the
 // same study runs; with them it is refused at once (exit 2) naming the
 // region buffers and what to do, for run and extents alike.
-func TestRegionBuffersOfRegionReachingFarPoleH34(t *testing.T) {
+func TestRegionBuffersOfRegionReachingFarPole(t *testing.T) {
 	outs := t.TempDir()
 	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
 	// 48 x 32 cells of 50 km around the North Pole.
@@ -62,7 +62,7 @@ func TestRegionBuffersOfRegionReachingFarPoleH34(t *testing.T) {
 		{name: "run, region buffer 50 km (batch fuzz c6093)", args: study("run", "--region-buffers=50"), code: 2, words: words},
 		{name: "run, region buffer -50 km", args: study("run", "--region-buffers=-50"), code: 2, words: words},
 		// The fuzz case gave 5000,100000; 100000 km is now refused before
-		// the region is read (TestBufferBeyondEarthHJ), so 20000 here.
+		// the region is read (TestBufferBeyondEarth), so 20000 here.
 		{name: "extents, region buffers 5000 and 20000 km (batch fuzz c6093)", args: study("extents", "--region-buffers=5000,20000"), code: 2, words: words},
 	})
 	// The same study without region buffers runs.

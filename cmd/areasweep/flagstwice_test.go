@@ -7,13 +7,13 @@ import (
 	"testing"
 )
 
-// TestFileFlagGivenTwiceHJ: a flag of one value (an input file, --out,
+// TestFileFlagGivenTwice: a flag of one value (an input file, --out,
 // --study, the ecoregion field) given twice with two values is refused,
 // naming both; only the last was used, and the other file left out
 // without a word (two --occurrences files do not make one table, two
 // --region layers do not make one region). The same value twice still
 // runs, and a list flag still appends. Nothing is written.
-func TestFileFlagGivenTwiceHJ(t *testing.T) {
+func TestFileFlagGivenTwice(t *testing.T) {
 	s := newSmallStudy(t)
 	dir := t.TempDir()
 	other := filepath.Join(dir, "other.csv")
@@ -53,10 +53,10 @@ func TestFileFlagGivenTwiceHJ(t *testing.T) {
 	}
 }
 
-// TestLongFlagValueCutHJ: a flag value of 100,000 characters is shown
+// TestLongFlagValueCut: a flag value of 100,000 characters is shown
 // by its first 60 and its length; pflag's message quoted it in full
 // (twice: 200 kB on the terminal). The message stays in our words.
-func TestLongFlagValueCutHJ(t *testing.T) {
+func TestLongFlagValueCut(t *testing.T) {
 	long := strings.Repeat("9", 100000)
 	for _, args := range [][]string{
 		{"run", "--seed", long},

@@ -8,12 +8,12 @@ import (
 	"github.com/airbusgeo/godal"
 )
 
-// TestAuxProblemFloat32NoDataH26: a Float32 GeoTIFF's own nodata value
+// TestAuxProblemFloat32NoData: a Float32 GeoTIFF's own nodata value
 // -9999.99 is held as a float32 (-9999.990234375); an .aux.xml that repeats
 // it as the user wrote it (as desktop GIS tools write the file) only
 // repeats the raster's own value, compared as the cells are: no problem.
 // Another value is still named.
-func TestAuxProblemFloat32NoDataH26(t *testing.T) {
+func TestAuxProblemFloat32NoData(t *testing.T) {
 	for _, tc := range []struct {
 		aux  string
 		want string

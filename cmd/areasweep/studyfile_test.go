@@ -7,12 +7,12 @@ import (
 	"testing"
 )
 
-// TestEmptyStudyFileHJ: a study file that sets nothing (empty, only
+// TestEmptyStudyFile: a study file that sets nothing (empty, only
 // comments, keys without values) is named when the run then lacks an
 // input; the message said only "no model given", as if no study file had
 // been given. Nothing is written. Another problem (--iterations 0) is
 // said without it.
-func TestEmptyStudyFileHJ(t *testing.T) {
+func TestEmptyStudyFile(t *testing.T) {
 	dir := t.TempDir()
 	for name, body := range map[string]string{"empty.yaml": "", "comments.yaml": "# to do\nseed:\n"} {
 		p := filepath.Join(dir, name)

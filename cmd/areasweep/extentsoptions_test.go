@@ -5,14 +5,14 @@ import (
 	"testing"
 )
 
-// TestBufferBeyondEarthHJ: a buffer distance beyond 20,004 km (half the
+// TestBufferBeyondEarth: a buffer distance beyond 20,004 km (half the
 // WGS84 meridian, 20,003.93 km from pole to pole by pyproj's
 // Geod(ellps="WGS84").inv(0, 90, 0, -90), rounded up: no two places lie
 // farther apart) is refused (exit 2), naming the flag, or the study
 // file's key it came from. It was accepted: the member took every cell
 // (or none) and 1e300 made an id of 300 digits; metres given as km look
 // like this. 20004 itself still runs.
-func TestBufferBeyondEarthHJ(t *testing.T) {
+func TestBufferBeyondEarth(t *testing.T) {
 	f := &badFixture{smallStudy: newSmallStudy(t), outs: t.TempDir()}
 	words := func(flag string) []string {
 		return []string{flag + " value", "no two places on Earth lie more than 20004 km apart", "give distances in km"}

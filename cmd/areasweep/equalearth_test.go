@@ -10,7 +10,7 @@ import (
 	"github.com/airbusgeo/godal"
 )
 
-// TestEqualEarthHB runs a study whose model is in Equal Earth (EPSG:8857),
+// TestEqualEarth runs a study whose model is in Equal Earth (EPSG:8857),
 // a CRS that GDAL 3.6 can write neither into GeoTIFF keys nor as WKT1.
 // gdalwarp -t_srs EPSG:8857 to a GeoTIFF leaves the CRS in an .aux.xml
 // beside it, which areasweep refuses; its advice used to be a GeoTIFF copy
@@ -19,7 +19,7 @@ import (
 // that VRT must succeed, writing extents.gpkg in Equal Earth (before, the
 // GeoPackage writer took GDAL's "Unsupported conversion method" for a
 // failure: exit 1 after scoring everything).
-func TestEqualEarthHB(t *testing.T) {
+func TestEqualEarth(t *testing.T) {
 	s := newSmallStudy(t)
 	src, err := godal.Open(s.model)
 	if err != nil {

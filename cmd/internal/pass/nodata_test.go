@@ -10,7 +10,7 @@ import (
 	"areasweep/extent"
 )
 
-// TestNoDataAsGDALH26 checks the cells decode takes for no data against
+// TestNoDataAsGDAL checks the cells decode takes for no data against
 // GDAL's own nodata mask (GDALNoDataMaskBand, read through the band's
 // mask), on in-memory bands of each float type and an integer type, with
 // values at and around the nodata value on both sides of GDAL's tolerance
@@ -19,7 +19,7 @@ import (
 // that a cell plus the nodata value overflows (which makes GDAL's test
 // hold). Infinite cells are left out: they are no data to areasweep
 // whatever the nodata value.
-func TestNoDataAsGDALH26(t *testing.T) {
+func TestNoDataAsGDAL(t *testing.T) {
 	extent.Register()
 	for _, tc := range []struct {
 		dt     godal.DataType

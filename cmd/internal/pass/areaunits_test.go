@@ -7,7 +7,7 @@ import (
 	"areasweep/extent"
 )
 
-// TestAreaUnitsHB checks the integer area weights the passes add: on grids
+// TestAreaUnits checks the integer area weights the passes add: on grids
 // of small cells each cell's weight must be its area to within 4.7e-10 of
 // it (2^-31, half a unit of 2^30 units), where the fixed unit of 1/4096
 // m^2 rounded a 1 m cell (0.79 m^2, 3222 units) by up to 1.6e-4 of its
@@ -16,7 +16,7 @@ import (
 // independent check made while fixing it, not kept). Grids of cells of
 // 512 m and more keep AreaUnitsPerKm2 (their outputs are unchanged), and
 // no grid exceeds the whole Earth's 2.1e18 units.
-func TestAreaUnitsHB(t *testing.T) {
+func TestAreaUnits(t *testing.T) {
 	for _, tc := range []struct {
 		name  string
 		w, h  int

@@ -76,14 +76,14 @@ func equalAreaCells(t *testing.T) equalAreaCellSet {
 	return cells
 }
 
-// TestEqualAreaUnitsHB checks the cell area of equal-area grids whose CRS
+// TestEqualAreaUnits checks the cell area of equal-area grids whose CRS
 // is not in metres: before the fix the planar area was taken in the CRS's
 // unit squared as if it were square metres, so a Lambert azimuthal grid in
 // kilometres reported 5 km cells as 2.5e-5 km2 and an Albers grid in US
 // survey feet reported 10,000 ft cells as 100 km2 (10.76 times their
 // area). The expected areas are the cells' true WGS84 areas from pyproj
 // (equalAreaCells), to 1e-8 relative (our tolerance).
-func TestEqualAreaUnitsHB(t *testing.T) {
+func TestEqualAreaUnits(t *testing.T) {
 	cells := equalAreaCells(t)
 	for _, name := range []string{"metres", "kilometres", "US survey feet"} {
 		t.Run(name, func(t *testing.T) {
@@ -100,7 +100,7 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 	}
 }
 
-// TestSphereEqualAreaHB checks the cell area of equal-area grids whose
+// TestSphereEqualArea checks the cell area of equal-area grids whose
 // projection PROJ computes on a sphere while their latitudes are read as
 // WGS84's (Mollweide and Eckert IV on the WGS84 datum, Mollweide on a
 // sphere): before the fix their planar area was taken as the true area,
@@ -116,7 +116,7 @@ func TestEqualAreaUnitsHB(t *testing.T) {
 // method GDAL names "Equal Earth", with no WKT1 name) keeps its exact
 // planar area. The expected areas are the cells' true WGS84 areas from
 // pyproj (equalAreaCells), to 1e-8 relative (our tolerance).
-func TestSphereEqualAreaHB(t *testing.T) {
+func TestSphereEqualArea(t *testing.T) {
 	cells := equalAreaCells(t)
 	for _, name := range []string{"Mollweide WGS84", "Eckert IV WGS84", "Mollweide sphere", "global Mollweide equator",
 		"global Mollweide top row", "EPSG:3035 stays planar", "Equal Earth planar", "sinusoidal on a sphere (MODIS)",

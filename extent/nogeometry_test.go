@@ -14,8 +14,8 @@ import (
 // found by noGeometry without calling GDAL on the NULL handle (godal's
 // handle is an unsafe.Pointer, which the reflection check once missed:
 // each such feature put "library error: the library reported an error",
-// GDAL's "Pointer 'hGeom' is NULL in 'OGR_G_IsEmpty'", into run.log; HG's
-// sweep, an ecoregion GeoPackage with one NULL geometry).
+// GDAL's "Pointer 'hGeom' is NULL in 'OGR_G_IsEmpty'", into run.log; a
+// sweep of malformed inputs: an ecoregion GeoPackage with one NULL geometry).
 func TestNoGeometryAsksGDALNothing(t *testing.T) {
 	Register()
 	gdalmsg.Install()

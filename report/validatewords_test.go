@@ -7,11 +7,11 @@ import (
 	"areasweep/extent/vocab"
 )
 
-// TestValidateCutsLongNamesHJ: a name, id or text of 100,000 characters
+// TestValidateCutsLongNames: a name, id or text of 100,000 characters
 // in a hand-edited results.json is shown by its first 60 characters and
 // its length; the message repeated it in full (100 kB on the terminal).
 // A key of that length given twice likewise.
-func TestValidateCutsLongNamesHJ(t *testing.T) {
+func TestValidateCutsLongNames(t *testing.T) {
 	long := strings.Repeat("g", 100000)
 	for name, edit := range map[string]func(r *Results){
 		"model name": func(r *Results) {

@@ -8,12 +8,12 @@ import (
 	"testing"
 )
 
-// TestStudyFlagOnlyKeysHJ: a study file key that is a command-line flag
+// TestStudyFlagOnlyKeys: a study file key that is a command-line flag
 // only (README: --study, --force, --quiet, --workers and --shard cannot
 // be set in the study file) is refused naming the line and saying so; it
 // was refused as an unknown key with the list of allowed keys only, which
 // left the user to guess why force: true is not allowed.
-func TestStudyFlagOnlyKeysHJ(t *testing.T) {
+func TestStudyFlagOnlyKeys(t *testing.T) {
 	for _, key := range []string{"study", "force", "quiet", "workers", "shard"} {
 		_, err := ParseStudy(strings.NewReader("seed: 3\n"+key+": 1\n"), "s.yaml", "")
 		if !errors.Is(err, ErrUnknownKey) {
@@ -28,11 +28,11 @@ func TestStudyFlagOnlyKeysHJ(t *testing.T) {
 	}
 }
 
-// TestStudyBinaryFileHJ: a raster or a GeoPackage given as --study is
+// TestStudyBinaryFile: a raster or a GeoPackage given as --study is
 // named as a binary file; the message said its first odd byte was "likely
 // Latin-1 or Windows-1252, e.g. an accented letter". The bytes are a
 // little-endian TIFF header and SQLite's ("SQLite format 3\0").
-func TestStudyBinaryFileHJ(t *testing.T) {
+func TestStudyBinaryFile(t *testing.T) {
 	dir := t.TempDir()
 	for name, body := range map[string]string{"model.tif": "II*\x00\x08\x00\x00\x00\x10\x00\xf0", "region.gpkg": "SQLite format 3\x00\x10\x00"} {
 		p := filepath.Join(dir, name)
@@ -46,10 +46,10 @@ func TestStudyBinaryFileHJ(t *testing.T) {
 	}
 }
 
-// TestStudyLongValueCutHJ: a study file value of 100,000 characters is
+// TestStudyLongValueCut: a study file value of 100,000 characters is
 // quoted by its first 60 and its length, as a table cell is; the message
 // repeated it in full (100 to 200 kB).
-func TestStudyLongValueCutHJ(t *testing.T) {
+func TestStudyLongValueCut(t *testing.T) {
 	long := strings.Repeat("9", 100000)
 	for _, body := range []string{
 		"iterations: " + long + "\n",
@@ -73,10 +73,10 @@ func errString(err error) string {
 	return err.Error()
 }
 
-// TestStudyDirectoryHJ: a folder given as --study (or as a study table)
+// TestStudyDirectory: a folder given as --study (or as a study table)
 // is named with what to give instead; the message stopped at "is a
 // directory, not a file".
-func TestStudyDirectoryHJ(t *testing.T) {
+func TestStudyDirectory(t *testing.T) {
 	dir := t.TempDir()
 	_, err := LoadStudy(dir)
 	if err == nil || !strings.Contains(err.Error(), "study file "+dir+" is a directory, not a file; give the path of the file itself") {

@@ -69,7 +69,7 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 	}
 }
 
-// TestBadRastersAndLayersH26: model rasters whose band holds complex
+// TestBadRastersAndLayers: model rasters whose band holds complex
 // numbers or declares a scale of 0, a raster and a layer on another
 // planet, rasters georeferenced by ground control points, south-up or
 // with cells of no height, GeoTIFFs cut short or with a damaged
@@ -80,7 +80,7 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 // without data only (told apart from one elsewhere), and --out (with
 // --force) the folder of a virtual raster's source. Each is refused with exit 2 naming the model
 // or input and the file, in plain words.
-func TestBadRastersAndLayersH26(t *testing.T) {
+func TestBadRastersAndLayers(t *testing.T) {
 	outs := t.TempDir()
 	f := &badFixture{smallStudy: newSmallStudy(t), outs: outs}
 	ridge := func(i int) float64 { return f.vals[i] }
@@ -341,7 +341,7 @@ func writeEHdr(t *testing.T, s *smallStudy, path string, cellNoData float32, hea
 	}
 }
 
-// TestInputsReadAsDeclaredH26: inputs that are valid but were misread
+// TestInputsReadAsDeclared: inputs that are valid but were misread
 // without a word, each scored exactly as its plain equivalent
 // (scores.csv byte for byte, the whole raster included, where the cells
 // without data lie):
@@ -356,7 +356,7 @@ func writeEHdr(t *testing.T, s *smallStudy, path string, cellNoData float32, hea
 //   - a region whose polygon sits in a GeometryCollection inside a
 //     GeometryCollection: read as no polygon at all, it was taken for the
 //     whole globe.
-func TestInputsReadAsDeclaredH26(t *testing.T) {
+func TestInputsReadAsDeclared(t *testing.T) {
 	s := newSmallStudy(t)
 	outs := t.TempDir()
 	run := func(t *testing.T, name string, args ...string) []byte {
