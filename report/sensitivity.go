@@ -263,7 +263,9 @@ type ModelVerdict struct {
 	BaseDefined bool               `json:"base_defined"`
 	Diffs       []ExtentDifference `json:"differences"`
 	// Largest is the index in Diffs of the defined difference with the
-	// largest |Diff| (-1 when none).
+	// largest |Diff| (-1 when none); for an extent-sensitive verdict, of
+	// the largest judged one (on MinPairedPoints or more common test
+	// points), which the verdict rests on.
 	Largest int `json:"largest"`
 	// Undefined lists extents where the difference could not be formed.
 	Undefined []string `json:"undefined_on"`

@@ -161,6 +161,12 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return
 	}
+	if outside > 0 && mv.Diffs[mv.Largest].Position == positionTooFew {
+		// An extent-sensitive verdict rests on the judged differences:
+		// name the largest of those, not one on too few test points
+		// (listed as not judged after it).
+		mv.Largest = largestJudged(mv.Diffs)
+	}
 	big := mv.Diffs[mv.Largest]
 	largest := "the largest is " + differenceText(big, m.Tolerance)
 	exact := big.Method == "exact"
@@ -183,8 +189,8 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	switch {
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
-		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s",
-			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s%s",
+			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
@@ -305,6 +311,21 @@ func tooFewText(ds []ExtentDifference) string {
 		return ""
 	}
 	return fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
+}
+
+// largestJudged is the index in ds of the defined difference with the
+// largest |Diff| among those judged (not on too few test points), or -1.
+func largestJudged(ds []ExtentDifference) int {
+	k := -1
+	for i, d := range ds {
+		if !d.Defined || d.Position == positionTooFew {
+			continue
+		}
+		if k < 0 || math.Abs(d.Diff) > math.Abs(ds[k].Diff) {
+			k = i
+		}
+	}
+	return k
 }
 
 // definedDiffs returns the defined differences of ds.
