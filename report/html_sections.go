@@ -386,7 +386,10 @@ type scoresView struct {
 	BootstrapNote string
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
-	NullNote   string
+	NullNote string
+	// TooFewNote, when a row of PartialROC leaves out the percentiles
+	// and P (BootstrapReadable), says why; "" otherwise.
+	TooFewNote string
 	Main       htmlTable
 	PartialROC htmlTable
 	Thresholds htmlTable
@@ -457,6 +460,11 @@ func scoresSection(r *Results) scoresView {
 			}
 			if !formedPartialROC(pr) {
 				row = append(row, full, dash, dash, dash)
+			} else if !BootstrapReadable(pr, sc.TestPoints) {
+				// Too few test points (or resamples) for an interval
+				// or a test: the mean only.
+				row = append(row, full, nc(pr.RatioMean, 3), dash, dash)
+				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the paired differences), or where fewer than 2 resamples formed a ratio, the percentiles and P are not given (–): resamples of so few records are no basis for an interval or a test.", MinPairedPoints)
 			} else {
 				row = append(row, full, nc(pr.RatioMean, 3),
 					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},

@@ -148,8 +148,12 @@ func methodsScores(b *strings.Builder, r *Results) {
 	st := r.Settings
 	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+		if fewTestPoints(r) {
+			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records, our cut-off", MinPairedPoints)
+		}
+		b.WriteString(")")
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {

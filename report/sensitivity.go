@@ -184,8 +184,9 @@ type Spread struct {
 	// BootSD holds the per-extent uncertainty drawn in the figure (0 when
 	// the metric has none): for AUC the SD over the full-size paired
 	// resamples (Score.AUCBootSD), for partial ROC the SD of the published
-	// half-size bootstrap. BootLow/BootHigh: value -+ SD for AUC, the
-	// published bootstrap interval for partial ROC.
+	// half-size bootstrap (0, with BootLow = BootHigh = the value, where
+	// BootstrapReadable is false). BootLow/BootHigh: value -+ SD for AUC,
+	// the published bootstrap interval for partial ROC.
 	BootSD   []float64 `json:"boot_sd,omitempty"`
 	BootLow  []float64 `json:"boot_low,omitempty"`
 	BootHigh []float64 `json:"boot_high,omitempty"`

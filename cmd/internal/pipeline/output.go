@@ -75,6 +75,11 @@ func scoresCSV(r *report.Results) []byte {
 				continue
 			}
 			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
+			if !report.BootstrapReadable(p, sc.TestPoints) {
+				// Fewer test points than the cut-off (or one resample
+				// formed): no percentiles and no P, as in the report.
+				continue
+			}
 			row("partial_roc_resample_p2_5", e, "", p.CILow)
 			row("partial_roc_resample_p97_5", e, "", p.CIHigh)
 			row("partial_roc_p_value", e, "", p.PValue)

@@ -1,0 +1,56 @@
+package pipeline
+
+import (
+	"bytes"
+	"encoding/csv"
+	"testing"
+
+	"areasweep/report"
+)
+
+// TestScoresCSVBootstrapTooFew: on an extent with fewer test points than
+// report.MinPairedPoints the published bootstrap's percentiles and P are
+// left out of scores.csv, as from the report (with one test point every
+// resample is that point: a P of 0 read as "< 1/B" and an interval of
+// zero width; HI's sweep). The full-sample ratio and the resamples' mean
+// stay.
+func TestScoresCSVBootstrapTooFew(t *testing.T) {
+	r, err := report.Load("../../../testdata/report/sample_results.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" && len(sc.PartialROC) > 0 {
+			sc.TestPoints = 1
+			sc.PartialROC[0].Defined, sc.PartialROC[0].NotFormed = true, 0
+			found = true
+		}
+	}
+	if !found {
+		t.Fatal("no partial ROC of good on base in the sample")
+	}
+	recs, err := csv.NewReader(bytes.NewReader(scoresCSV(r))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := map[string]bool{}
+	for _, rec := range recs[1:] {
+		if rec[0] == "good" && rec[1] == "base" {
+			got[rec[5]] = true
+		}
+		if rec[0] == "good" && rec[1] == "region_b50" && rec[5] == "partial_roc_p_value" {
+			got["other extent's P"] = true
+		}
+	}
+	for _, m := range []string{"partial_roc_ratio", "partial_roc_ratio_resample_mean", "other extent's P"} {
+		if !got[m] {
+			t.Errorf("no %s row", m)
+		}
+	}
+	for _, m := range []string{"partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"} {
+		if got[m] {
+			t.Errorf("%s row on 1 test point", m)
+		}
+	}
+}

@@ -1,0 +1,88 @@
+package report
+
+import (
+	"strings"
+	"testing"
+)
+
+// TestBootstrapTooFewPoints: the published half-size bootstrap of the
+// partial ROC ratio gave, on an extent of one test point, an interval of
+// zero width and a P printed "< 0.005" (every resample is that point: HI's
+// sweep), a test the data cannot support. On fewer than MinPairedPoints
+// test points (or fewer than 2 resamples formed) the report gives the
+// full-sample ratio and the resamples' mean, without percentiles or P.
+func TestBootstrapTooFewPoints(t *testing.T) {
+	cases := []struct {
+		n, iterations, notFormed int
+		want                     bool
+	}{
+		{1, 200, 0, false},
+		{3, 200, 0, false},
+		{MinPairedPoints - 1, 200, 0, false},
+		{MinPairedPoints, 200, 0, true},
+		{90, 1, 0, false},
+		{90, 2, 0, true},
+		{90, 200, 199, false},
+	}
+	for _, c := range cases {
+		pr := PartialROC{Iterations: c.iterations, NotFormed: c.notFormed}
+		if got := BootstrapReadable(pr, c.n); got != c.want {
+			t.Errorf("n %d, %d of %d formed: readable %v, want %v", c.n, c.iterations-c.notFormed, c.iterations, got, c.want)
+		}
+	}
+
+	r := loadSample(t)
+	var sc *Score
+	for i := range r.Scores {
+		if s := &r.Scores[i]; s.Model == "good" && s.Extent == "base" {
+			sc = s
+		}
+	}
+	if sc == nil || len(sc.PartialROC) == 0 {
+		t.Fatal("no partial ROC of good on base in the sample")
+	}
+	sc.TestPoints = 1
+	pr := &sc.PartialROC[0]
+	pr.Defined, pr.Ratio, pr.RatioMean, pr.CILow, pr.CIHigh, pr.PValue, pr.NotFormed = true, 1.884, 1.884, 1.884, 1.884, 0, 0
+	analyzed(t, r)
+	v := scoresSection(r)
+	var row []cell
+	for _, rw := range v.PartialROC.Rows {
+		if rw[0].text == "good" && rw[1].text == "base" {
+			row = rw
+			break
+		}
+	}
+	if row == nil {
+		t.Fatal("no partial ROC row of good on base")
+	}
+	if got := row[5].text + " | " + row[6].text; got != "– | –" {
+		t.Errorf("interval and P on 1 test point: %s", got)
+	}
+	if row[3].text != "1.884" || row[4].text != "1.884" {
+		t.Errorf("ratio and mean: %s, %s", row[3].text, row[4].text)
+	}
+	checkWords(t, "table caption", v.TooFewNote, []string{"fewer than 10 test records (our cut-off, as for the paired differences)"}, nil)
+	td, err := teachData(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(td), `"partial_roc_no_interval":true`); n != 1 {
+		t.Errorf("explorer: %d cells without the interval, want 1 (good on base)", n)
+	}
+	if strings.Contains(methodsText(analyzedSample(t)), "neither is given") || scoresSection(analyzedSample(t)).TooFewNote != "" {
+		t.Error("the note is given although every extent holds enough test points")
+	}
+	checkWords(t, "methods", methodsText(r), []string{"neither is given on an extent with fewer than 10 test records, our cut-off"}, nil)
+	checkWords(t, "caption", metricsCaption(r), []string{"(no bar on an extent with fewer than 10 test records, our cut-off)"}, nil)
+	for _, sp := range r.Sensitivity.Spreads {
+		if sp.Metric != MetricKeyPartialROC(pr.E) || sp.Model != "good" {
+			continue
+		}
+		for i, e := range sp.Extents {
+			if e == "base" && (sp.BootSD[i] != 0 || sp.BootLow[i] != 1.884 || sp.BootHigh[i] != 1.884) {
+				t.Errorf("spread of good on base: SD %g, %g to %g", sp.BootSD[i], sp.BootLow[i], sp.BootHigh[i])
+			}
+		}
+	}
+}
