@@ -93,6 +93,15 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	return d
 }
 
+// baseWord is "the base extent", or "the reference extent" when base is
+// another extent standing in for a base extent that could not be scored.
+func baseWord(base string) string {
+	if base != vocab.BaseID {
+		return "the reference extent"
+	}
+	return "the base extent"
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
@@ -100,7 +109,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
 	if bs == nil {
-		mv.Sentence = fmt.Sprintf("%s of %s: not scored on the base extent %s, so no difference from it can be formed.", upperFirst(m.Label), model, a.base)
+		mv.Sentence = fmt.Sprintf("%s of %s: not scored on %s %s, so no difference from it can be formed.", upperFirst(m.Label), model, baseWord(a.base), a.base)
 		return mv
 	}
 	var baseOK bool
@@ -156,7 +165,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
 		if !baseOK {
-			why = fmt.Sprintf("it is undefined on %s, the base extent%s", a.base, undefinedWhy(m, bs))
+			why = fmt.Sprintf("it is undefined on %s, %s%s", a.base, baseWord(a.base), undefinedWhy(m, bs))
 		}
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return

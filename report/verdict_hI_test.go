@@ -1,6 +1,10 @@
 package report
 
-import "testing"
+import (
+	"testing"
+
+	"areasweep/extent/vocab"
+)
 
 // TestSensitiveVerdictCitesJudged: an extent-sensitive verdict rests on
 // the differences judged against the tolerance; it named as "the largest"
@@ -32,4 +36,48 @@ func TestSensitiveVerdictCitesJudged(t *testing.T) {
 		[]string{"is extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.067 to +0.209)"},
 		[]string{"-0.300 on points_b25"})
 	checkWords(t, "methods", methodsText(r), []string{"extent-sensitive (largest difference from base +0.138 on whole"}, []string{"-0.300 on points_b25"})
+}
+
+// TestReferenceExtentVerdictWords: where the base extent could not be
+// scored and another extent stands in for it, a verdict left undetermined
+// by a score undefined there called that extent "the base extent" (HI's
+// sweep: every test point outside the base region; "it is undefined on
+// region_500km, the base extent"), and so did the sentence of a model not
+// scored on it.
+func TestReferenceExtentVerdictWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	ref := analyzed(t, r).BaseExtent
+	if ref == vocab.BaseID {
+		t.Fatal("no reference extent")
+	}
+	key := ""
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		if sc.Extent != ref {
+			continue
+		}
+		if sc.Model == "good" && len(sc.PartialROC) > 0 {
+			sc.PartialROC[0].Defined, sc.PartialROC[0].Reason = false, "the curve reaches 1 - E only at x = 1"
+			key = MetricKeyPartialROC(sc.PartialROC[0].E)
+		}
+		if sc.Model == "truncated" {
+			sc.Scored, sc.NotScored = false, "constant suitability"
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(key, "good")
+	if mv == nil {
+		t.Fatalf("no verdict %s of good", key)
+	}
+	checkWords(t, "undefined there", mv.Sentence, []string{"it is undefined on " + ref + ", the reference extent"}, []string{"the base extent"})
+	mv = s.findModelVerdict("auc", "truncated")
+	if mv == nil {
+		t.Fatal("no AUC verdict of truncated")
+	}
+	checkWords(t, "not scored there", mv.Sentence, []string{"not scored on the reference extent " + ref}, []string{"the base extent"})
 }
