@@ -209,8 +209,15 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
 			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin)
 	case big.Diff == 0 && big.Low == 0 && big.High == 0:
-		// Undetermined only for the differences on too few test points,
-		// every one of them 0: no extent is "the largest".
+		// Every difference is 0: no extent is "the largest". Undetermined
+		// for the differences on too few test points, or for an interval
+		// that straddles the tolerance around a difference of 0 (named,
+		// whichever extent it is on).
+		if straddle := straddleText(mv.Diffs, ExtentDifference{}, m.Tolerance); straddle != "" {
+			mv.Sentence = fmt.Sprintf("%s is undetermined: every difference from %s is 0, but the paired intervals are too wide to tell whether it moves by more than %s%s.%s%s",
+				name, a.base, tol, straddle, notOn, tooFewText(mv.Diffs))
+			break
+		}
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
 			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:

@@ -81,3 +81,30 @@ func TestReferenceExtentVerdictWords(t *testing.T) {
 	}
 	checkWords(t, "not scored there", mv.Sentence, []string{"not scored on the reference extent " + ref}, []string{"the base extent"})
 }
+
+// TestAllZeroStraddleNotTooFew: every difference from the base extent 0,
+// all on enough test points, one interval straddling the tolerance (HI's
+// sweep: a model of three values, whose Boyce index was 0.609 on every
+// extent, the resamples of points_50km's 80 test points reaching -0.563).
+// The verdict blamed "too few test points" and named no interval; the
+// straddling interval is what leaves it undetermined.
+func TestAllZeroStraddleNotTooFew(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, 0, 0, 0
+		}
+	}
+	if setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
+		t.Fatal("no Boyce record of good on hull")
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("boyce", "good")
+	if mv == nil || mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	checkWords(t, "sentence", mv.Sentence,
+		[]string{"every difference from base is 0, but the paired intervals are too wide to tell whether it moves by more than ±0.1",
+			"straddles ±0.1 on 1 of", "on hull (95% interval -0.563 to +0.000)"},
+		[]string{"too few test points"})
+}
