@@ -1,6 +1,7 @@
 package report
 
 import (
+	"strings"
 	"testing"
 
 	"areasweep/extent/vocab"
@@ -107,4 +108,35 @@ func TestAllZeroStraddleNotTooFew(t *testing.T) {
 		[]string{"every difference from base is 0, but the paired intervals are too wide to tell whether it moves by more than ±0.1",
 			"straddles ±0.1 on 1 of", "on hull (95% interval -0.563 to +0.000)"},
 		[]string{"too few test points"})
+}
+
+// TestIndependenceZeroDistances: test points that coincide with training
+// points (0 km, to the metre) were reported as "Distances from test to
+// training points were not computed, so their independence is not
+// assessed" (HI's sweep: the test points given again as the training
+// points): the worst dependence read as no information. The run measures
+// the distances whenever a training point is scored, so 0 is a distance.
+func TestIndependenceZeroDistances(t *testing.T) {
+	r := loadSample(t)
+	n := 0
+	for i := range r.Points {
+		if p := &r.Points[i]; p.Role == vocab.RoleTest && p.Status == vocab.PointScored {
+			p.NearestTrainKm = 0
+			n++
+		}
+	}
+	ind := analyzed(t, r).Independence
+	if !ind.Defined || !ind.Warn || ind.NearShare != 1 || ind.N != n {
+		t.Fatalf("independence: %+v", ind)
+	}
+	checkWords(t, "sentence", ind.Sentence, []string{"test points lie on a training point (0 km from the nearest, to the metre); 100% lie within 3 cell widths"},
+		[]string{"not computed"})
+	for i := range r.Points {
+		if r.Points[i].Role == vocab.RoleTrain {
+			r.Points[i].Status = vocab.PointOutsideRaster
+		}
+	}
+	if ind := analyzed(t, r).Independence; ind.Defined || !strings.Contains(ind.Sentence, "not computed") {
+		t.Errorf("without training points: %+v", ind)
+	}
 }
