@@ -1,6 +1,7 @@
 package report
 
 import (
+	"slices"
 	"strings"
 	"testing"
 )
@@ -83,6 +84,32 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 			if e == "base" && (sp.BootSD[i] != 0 || sp.BootLow[i] != 1.884 || sp.BootHigh[i] != 1.884) {
 				t.Errorf("spread of good on base: SD %g, %g to %g", sp.BootSD[i], sp.BootLow[i], sp.BootHigh[i])
 			}
+		}
+	}
+}
+
+// TestScoresTableNoTrainingAUC: the Scores table showed "0.000" as the AUC
+// on the training records of an extent holding none (HI's sweep: an extra
+// extent around one test point); results.json holds 0 there by
+// convention, the table a dash.
+func TestScoresTableNoTrainingAUC(t *testing.T) {
+	r := analyzedSample(t)
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+			sc.TrainPoints, sc.AUCTrain = 0, 0
+		}
+	}
+	v := scoresSection(r)
+	col := slices.Index(v.Main.Head, "AUC on the training records")
+	if col < 0 {
+		t.Fatalf("no training AUC column in %v", v.Main.Head)
+	}
+	for _, row := range v.Main.Rows {
+		if row[0].text == "good" && row[1].text == "base" && row[col].text != "–" {
+			t.Errorf("AUC on no training records: %q", row[col].text)
+		}
+		if row[0].text == "good" && row[1].text == "region_b50" && row[col].text == "–" {
+			t.Error("dash on an extent with training records")
 		}
 	}
 }

@@ -56,10 +56,17 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
-		row("auc_train", "", "", sc.AUCTrain)
-		row("auc_boot_sd", "", "", sc.AUCBootSD)
-		row("auc_se", "", "", sc.AUCSE)
-		row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
+		if sc.TrainPoints > 0 {
+			// results.json holds 0 without training points: no AUC.
+			row("auc_train", "", "", sc.AUCTrain)
+		}
+		if sc.TestPoints >= 2 {
+			// With one test point there is no spread to measure:
+			// results.json holds 0 (or rounding dust), not an SE.
+			row("auc_boot_sd", "", "", sc.AUCBootSD)
+			row("auc_se", "", "", sc.AUCSE)
+			row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
+		}
 		for _, p := range sc.PartialROC {
 			e := ftoa(p.E)
 			if !p.Defined {

@@ -54,3 +54,45 @@ func TestScoresCSVBootstrapTooFew(t *testing.T) {
 		}
 	}
 }
+
+// TestScoresCSVNoNumberWithoutPoints: scores.csv wrote auc_train 0 for an
+// extent holding no training point, and auc_se 0 (auc_boot_sd a rounding
+// dust of 2e-15, auc_unweighted_se_delong 0) for an extent holding one test
+// point (HI's sweep: an extra extent around one test point), numbers that
+// read as an AUC of 0 and as no uncertainty; results.json holds 0 there by
+// its documented convention. The rows are left out, as the report shows a
+// dash.
+func TestScoresCSVNoNumberWithoutPoints(t *testing.T) {
+	r, err := report.Load("../../../testdata/report/sample_results.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+			sc.TestPoints, sc.TrainPoints, sc.AUCTrain, sc.AUCSE, sc.AUCBootSD, sc.AUCUnweightedSEDeLong = 1, 0, 0, 0, 2e-15, 0
+		}
+	}
+	recs, err := csv.NewReader(bytes.NewReader(scoresCSV(r))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := map[string]bool{}
+	for _, rec := range recs[1:] {
+		if rec[0] == "good" && rec[1] == "base" {
+			got[rec[5]] = true
+		}
+		if rec[0] == "good" && rec[1] == "region_b50" {
+			got["other extent's "+rec[5]] = true
+		}
+	}
+	for _, m := range []string{"auc", "auc_unweighted", "other extent's auc_train", "other extent's auc_se", "other extent's auc_boot_sd", "other extent's auc_unweighted_se_delong"} {
+		if !got[m] {
+			t.Errorf("no %s row", m)
+		}
+	}
+	for _, m := range []string{"auc_train", "auc_se", "auc_boot_sd", "auc_unweighted_se_delong"} {
+		if got[m] {
+			t.Errorf("%s row with 1 test point and no training point", m)
+		}
+	}
+}

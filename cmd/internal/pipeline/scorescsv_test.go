@@ -53,7 +53,13 @@ func TestScoresCSV(t *testing.T) {
 		if !sc.Scored {
 			continue
 		}
-		rows += 6 + 5*len(sc.Thresholds)
+		rows += 2 + 5*len(sc.Thresholds) // auc, auc_unweighted; five per rule
+		if sc.TrainPoints > 0 {
+			rows++ // auc_train
+		}
+		if sc.TestPoints >= 2 {
+			rows += 3 // auc_boot_sd, auc_se, auc_unweighted_se_delong
+		}
 		for _, pr := range sc.PartialROC {
 			rows++ // the ratio, or partial_roc_undefined
 			if pr.Iterations > pr.NotFormed {
