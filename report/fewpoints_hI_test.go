@@ -113,3 +113,22 @@ func TestScoresTableNoTrainingAUC(t *testing.T) {
 		}
 	}
 }
+
+// TestPartialROCTableE: the Partial ROC table printed E with two decimals,
+// so --e 0.001 read "0.00" and --e 0.999 "1.00", values E cannot take
+// (HI's sweep); E is printed as given.
+func TestPartialROCTableE(t *testing.T) {
+	r := analyzedSample(t)
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			r.Scores[i].PartialROC[j].E = []float64{0.001, 0.999}[(i+j)%2]
+		}
+	}
+	seen := map[string]bool{}
+	for _, row := range scoresSection(r).PartialROC.Rows {
+		seen[row[2].text] = true
+	}
+	if !seen["0.001"] || !seen["0.999"] || seen["0.00"] || seen["1.00"] {
+		t.Errorf("E printed as %v", seen)
+	}
+}

@@ -453,7 +453,8 @@ func scoresSection(r *Results) scoresView {
 			continue
 		}
 		for _, pr := range sc.PartialROC {
-			row := []cell{tc(sc.Model), tc(sc.Extent), nc(pr.E, 2)}
+			// E as given (0.001 is not "0.00", 0.999 not "1.00").
+			row := []cell{tc(sc.Model), tc(sc.Extent), {text: fmtG(pr.E), num: pr.E, isN: true, cls: "n"}}
 			full := nc(pr.Ratio, 3)
 			if !pr.Defined {
 				full = cell{text: "undefined: " + pr.Reason}
