@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 
@@ -509,9 +510,24 @@ func fmtPResampled(p float64, b int) string {
 		return "–"
 	}
 	if floor := 1 / float64(b); p < floor {
-		return "< " + trimFloat(floor, 2)
+		return "< " + ceilSig(floor, 2)
 	}
 	return fmtP(p)
+}
+
+// ceilSig prints v > 0 to sig significant digits rounded up, so that a
+// bound printed after "<" is not below the true one (1/184 = 0.005435 is
+// "0.0055", not "0.0054"); a v that the digits hold exactly (1/500) prints
+// as it is.
+func ceilSig(v float64, sig int) string {
+	m := math.Pow(10, math.Floor(math.Log10(v))-float64(sig-1))
+	q := v / m
+	if r := math.Round(q); math.Abs(q-r) <= 1e-9*q {
+		q = r
+	} else {
+		q = math.Ceil(q)
+	}
+	return trimFloat(q*m, sig)
 }
 
 // reviewerText answers "is the score a property of the model or of the
