@@ -132,3 +132,28 @@ func TestPartialROCTableE(t *testing.T) {
 		t.Errorf("E printed as %v", seen)
 	}
 }
+
+// TestScoresTableNoSDOfOneResample: with --iterations 1 the Scores table
+// showed "0.0000" as the AUC resample SD, the SD of one value (HI's
+// sweep); it shows a dash.
+func TestScoresTableNoSDOfOneResample(t *testing.T) {
+	r := analyzedSample(t)
+	r.Settings.PairedResamples = 1
+	v := scoresSection(r)
+	col := slices.Index(v.Main.Head, "AUC resample SD")
+	if col < 0 {
+		t.Fatalf("no resample SD column in %v", v.Main.Head)
+	}
+	for _, row := range v.Main.Rows {
+		if row[5].text == "yes" && row[col].text != "–" {
+			t.Errorf("%s on %s: resample SD %q from one resample", row[0].text, row[1].text, row[col].text)
+		}
+	}
+	td, err := teachData(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n, m := strings.Count(string(td), `"auc_sd_none":true`), strings.Count(string(td), `"scored":true`); n == 0 || n != m {
+		t.Errorf("explorer still gives an SD from one resample")
+	}
+}

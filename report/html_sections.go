@@ -436,7 +436,7 @@ func scoresSection(r *Results) scoresView {
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), defNum(sc.AUCSE, sc.TestPoints >= 2, 4), nc(sc.AUCUnweighted, 3), defNum(sc.AUCTrain, sc.TrainPoints > 0, 3), defNum(sc.AUCBootSD, sc.TestPoints >= 2, 4))
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), defNum(sc.AUCSE, sc.TestPoints >= 2, 4), nc(sc.AUCUnweighted, 3), defNum(sc.AUCTrain, sc.TrainPoints > 0, 3), defNum(sc.AUCBootSD, sc.TestPoints >= 2 && st.PairedResamples >= 2, 4))
 		if sc.Boyce != nil {
 			row = append(row, nc(sc.Boyce.Index, 3))
 		} else {

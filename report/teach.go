@@ -32,6 +32,9 @@ type teachCell struct {
 	// are not given (BootstrapReadable is false; PartialROCLow and
 	// PartialROCHigh are 0).
 	PartialROCNoInterval bool `json:"partial_roc_no_interval,omitempty"`
+	// AUCSDNone: there is no SD of AUC over the paired resamples (fewer
+	// than 2 test points or resamples; AUCSD is 0).
+	AUCSDNone bool `json:"auc_sd_none,omitempty"`
 }
 
 type teachExtent struct {
@@ -106,6 +109,9 @@ func teachData(r *Results) ([]byte, error) {
 				continue
 			}
 			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
+			if sc.TestPoints < 2 || r.Settings.PairedResamples < 2 {
+				c.AUCSD, c.AUCSDNone = 0, true
+			}
 			for _, pr := range sc.PartialROC {
 				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
 					c.PartialROC, c.PartialROCOK = pr.Ratio, true

@@ -164,7 +164,7 @@
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
-        row("AUC", fx(c.auc, 3) + " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")");
+        row("AUC", fx(c.auc, 3) + (c.auc_sd_none ? "" : " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")"));
         if (c.partial_roc_ok) {
           row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + (c.partial_roc_no_interval ?
             " (full sample; too few test points for the percentiles of " + data.bootstrap + ")" :

@@ -62,8 +62,11 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		if sc.TestPoints >= 2 {
 			// With one test point there is no spread to measure:
-			// results.json holds 0 (or rounding dust), not an SE.
-			row("auc_boot_sd", "", "", sc.AUCBootSD)
+			// results.json holds 0 (or rounding dust), not an SE; nor
+			// is there an SD of one resample (--iterations 1).
+			if r.Settings.PairedResamples >= 2 {
+				row("auc_boot_sd", "", "", sc.AUCBootSD)
+			}
 			row("auc_se", "", "", sc.AUCSE)
 			row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
 		}

@@ -96,3 +96,33 @@ func TestScoresCSVNoNumberWithoutPoints(t *testing.T) {
 		}
 	}
 }
+
+// TestScoresCSVNoSDOfOneResample: with --iterations 1 the SD of AUC over
+// the paired resamples is the SD of one value, written as 0 (HI's sweep);
+// the row is left out.
+func TestScoresCSVNoSDOfOneResample(t *testing.T) {
+	r, err := report.Load("../../../testdata/report/sample_results.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	r.Settings.PairedResamples = 1
+	for i := range r.Scores {
+		r.Scores[i].AUCBootSD = 0
+	}
+	recs, err := csv.NewReader(bytes.NewReader(scoresCSV(r))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	se := 0
+	for _, rec := range recs[1:] {
+		switch rec[5] {
+		case "auc_boot_sd":
+			t.Fatalf("row %v from one resample", rec)
+		case "auc_se":
+			se++
+		}
+	}
+	if se == 0 {
+		t.Error("no auc_se rows either")
+	}
+}
