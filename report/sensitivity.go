@@ -31,6 +31,12 @@ const (
 	// a reading against a null (with 3 points the interval can even have
 	// zero width). Its position is "too_few" and its reading ReadingTooFew.
 	MinPairedPoints = 10
+	// MinPercentileResamples: with fewer resamples than this a 2.5th and
+	// a 97.5th percentile do not lie inside the resampled values (1/0.025
+	// = 40; type 7 interpolates them toward the most extreme ones), so
+	// the run warns that the percentile intervals, and what is read from
+	// them, are not reliable (our cut-off).
+	MinPercentileResamples = 40
 	// KmPerDegree is the length of one degree of latitude used to turn
 	// geographic cell widths into km (approximation: 40,075 km / 360 at the
 	// equator, scaled by cos(latitude) for longitude).
