@@ -302,6 +302,10 @@ type Score struct {
 	PartialROC []PartialROC `json:"partial_roc"`
 	Thresholds []Threshold  `json:"thresholds"`
 	Boyce      *Boyce       `json:"boyce"`
+
+	// BoyceUndefined says why Boyce is null on a scored pair (fewer than 3
+	// windows with background area, or no variation); absent otherwise.
+	BoyceUndefined string `json:"boyce_undefined_reason,omitempty"`
 }
 
 // PartialROC is the partial ROC result for one allowable omission E.

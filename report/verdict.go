@@ -364,8 +364,12 @@ func allInside(ds []ExtentDifference) bool {
 	return true
 }
 
-// undefinedWhy names why a partial ROC ratio is undefined on s.
+// undefinedWhy names why a partial ROC ratio or a Boyce index is
+// undefined on s.
 func undefinedWhy(m MetricInfo, s *Score) string {
+	if m.Kind == MetricBoyce && s.Boyce == nil && s.BoyceUndefined != "" {
+		return " (" + s.BoyceUndefined + ")"
+	}
 	if m.Kind != MetricPartialROC {
 		return ""
 	}

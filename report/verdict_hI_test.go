@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // TestSensitiveVerdictCitesJudged: an extent-sensitive verdict rests on
@@ -139,4 +140,33 @@ func TestIndependenceZeroDistances(t *testing.T) {
 	if ind := analyzed(t, r).Independence; ind.Defined || !strings.Contains(ind.Sentence, "not computed") {
 		t.Errorf("without training points: %+v", ind)
 	}
+}
+
+// TestBoyceUndefinedSaysWhy: a model of two values has its Boyce index
+// undefined (only 2 windows hold background area: HI's sweep); the
+// verdict said "it is undefined on base, the base extent." without why,
+// as results.json kept no reason. The run records metrics.Boyce's reason
+// and the verdict gives it, as it does for partial ROC.
+func TestBoyceUndefinedSaysWhy(t *testing.T) {
+	var sc Score
+	sc.SetScores(metrics.Scores{Scored: true, TestN: 5, Boyce: metrics.Boyce{Reason: metrics.ReasonBoyceWindows}}, 1)
+	if sc.Boyce != nil || sc.BoyceUndefined != metrics.ReasonBoyceWindows {
+		t.Fatalf("Boyce %v, reason %q", sc.Boyce, sc.BoyceUndefined)
+	}
+	r := loadSample(t)
+	for i := range r.Scores {
+		if s := &r.Scores[i]; s.Model == "good" && s.Extent == vocab.BaseID {
+			s.Boyce, s.BoyceUndefined = nil, metrics.ReasonBoyceWindows
+		}
+	}
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Model == "good" {
+			p.Defined = false // no difference from an undefined index
+		}
+	}
+	mv := analyzed(t, r).findModelVerdict("boyce", "good")
+	if mv == nil {
+		t.Fatal("no Boyce verdict of good")
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"it is undefined on base, the base extent (fewer than 3 windows with background area)"}, nil)
 }
