@@ -138,7 +138,10 @@ func (a *analysis) independence() Independence {
 	var d []float64
 	var latSum float64
 	var latN int
-	anyNonZero := false
+	// The run measures the distances whenever a training point is
+	// scored; 0 km is then a distance (a test point on a training point,
+	// to the metre), not a missing one.
+	anyTrain := false
 	for _, p := range a.r.Points {
 		if p.Status != vocab.PointScored {
 			continue
@@ -146,15 +149,13 @@ func (a *analysis) independence() Independence {
 		latSum += p.Lat
 		latN++
 		if p.Role != vocab.RoleTest {
+			anyTrain = anyTrain || p.Role == vocab.RoleTrain
 			continue
 		}
 		d = append(d, p.NearestTrainKm)
-		if p.NearestTrainKm != 0 {
-			anyNonZero = true
-		}
 	}
 	ind := Independence{N: len(d)}
-	if len(d) == 0 || !anyNonZero {
+	if len(d) == 0 || !anyTrain {
 		ind.Sentence = "Distances from test to training points were not computed, so their independence is not assessed."
 		return ind
 	}
@@ -184,6 +185,13 @@ func (a *analysis) independence() Independence {
 	if len(d) == 1 {
 		// One distance: no range or median to give.
 		spread = fmt.Sprintf("The 1 test point lies %s km from the nearest training point", trimFloat(ind.Min, 3))
+	}
+	if ind.Max == 0 {
+		// Every test point on a training point: no spread to give.
+		spread = fmt.Sprintf("All %d test points lie on a training point (0 km from the nearest, to the metre)", len(d))
+		if len(d) == 1 {
+			spread = "The 1 test point lies on a training point (0 km from the nearest, to the metre)"
+		}
 	}
 	ind.Sentence = fmt.Sprintf("%s; %s lie within %g cell widths (%s km%s) of one",
 		spread, pctVs(ind.NearShare, NearShareWarn), NearCells, trimFloat(ind.NearKm, 3), how)

@@ -68,7 +68,7 @@ func metricPointOf(m MetricInfo, sc *Score, paired int) (metricPoint, bool) {
 			if math.Abs(pr.E-m.E) > 1e-12 || pr.Iterations-pr.NotFormed < 1 {
 				continue
 			}
-			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: pr.Iterations-pr.NotFormed >= 2}, true
+			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: BootstrapReadable(pr, sc.TestPoints)}, true
 		}
 	case MetricOmission, MetricAreaFraction:
 		for _, t := range sc.Thresholds {
@@ -368,6 +368,18 @@ type errPoints struct {
 	plotter.YErrors
 }
 
+// fewTestPoints tells whether a scored model or null holds fewer than
+// MinPairedPoints test points on some extent (where the published
+// bootstrap gives no interval or P: BootstrapReadable).
+func fewTestPoints(r *Results) bool {
+	for _, sc := range r.Scores {
+		if sc.Scored && sc.TestPoints < MinPairedPoints {
+			return true
+		}
+	}
+	return false
+}
+
 func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
@@ -390,6 +402,9 @@ func metricsCaption(r *Results) string {
 		bar := ""
 		if st.Iterations >= 2 {
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
+			if fewTestPoints(r) {
+				bar += fmt.Sprintf(" (no bar on an extent with fewer than %d test records, our cut-off)", MinPairedPoints)
+			}
 		}
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",

@@ -44,6 +44,8 @@ func (sc *Score) SetScores(out metrics.Scores, unitsPerKm2 float64) {
 	}
 	if out.Boyce.Defined {
 		sc.Boyce = &Boyce{Index: out.Boyce.Index, Windows: out.Boyce.Windows, Used: out.Boyce.Used, Mid: out.Boyce.Mid, Ratio: out.Boyce.Ratio}
+	} else {
+		sc.BoyceUndefined = out.Boyce.Reason
 	}
 }
 

@@ -386,7 +386,10 @@ type scoresView struct {
 	BootstrapNote string
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
-	NullNote   string
+	NullNote string
+	// TooFewNote, when a row of PartialROC leaves out the percentiles
+	// and P (BootstrapReadable), says why; "" otherwise.
+	TooFewNote string
 	Main       htmlTable
 	PartialROC htmlTable
 	Thresholds htmlTable
@@ -433,7 +436,7 @@ func scoresSection(r *Results) scoresView {
 			rows = append(rows, row)
 			continue
 		}
-		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), defNum(sc.AUCSE, sc.TestPoints >= 2, 4), nc(sc.AUCUnweighted, 3), nc(sc.AUCTrain, 3), defNum(sc.AUCBootSD, sc.TestPoints >= 2, 4))
+		row = append(row, ic(sc.TestPoints), ic(sc.TrainPoints), tc("yes"), nc(sc.AUC, 3), defNum(sc.AUCSE, sc.TestPoints >= 2, 4), nc(sc.AUCUnweighted, 3), defNum(sc.AUCTrain, sc.TrainPoints > 0, 3), defNum(sc.AUCBootSD, sc.TestPoints >= 2 && st.PairedResamples >= 2, 4))
 		if sc.Boyce != nil {
 			row = append(row, nc(sc.Boyce.Index, 3))
 		} else {
@@ -450,13 +453,19 @@ func scoresSection(r *Results) scoresView {
 			continue
 		}
 		for _, pr := range sc.PartialROC {
-			row := []cell{tc(sc.Model), tc(sc.Extent), nc(pr.E, 2)}
+			// E as given (0.001 is not "0.00", 0.999 not "1.00").
+			row := []cell{tc(sc.Model), tc(sc.Extent), {text: fmtG(pr.E), num: pr.E, isN: true, cls: "n"}}
 			full := nc(pr.Ratio, 3)
 			if !pr.Defined {
 				full = cell{text: "undefined: " + pr.Reason}
 			}
 			if !formedPartialROC(pr) {
 				row = append(row, full, dash, dash, dash)
+			} else if !BootstrapReadable(pr, sc.TestPoints) {
+				// Too few test points (or resamples) for an interval
+				// or a test: the mean only.
+				row = append(row, full, nc(pr.RatioMean, 3), dash, dash)
+				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the paired differences), or where fewer than 2 resamples formed a ratio, the percentiles and P are not given (–): resamples of so few records are no basis for an interval or a test.", MinPairedPoints)
 			} else {
 				row = append(row, full, nc(pr.RatioMean, 3),
 					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},

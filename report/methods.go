@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 
@@ -148,8 +149,12 @@ func methodsScores(b *strings.Builder, r *Results) {
 	st := r.Settings
 	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d)",
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+		if fewTestPoints(r) {
+			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records, our cut-off", MinPairedPoints)
+		}
+		b.WriteString(")")
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
@@ -505,9 +510,24 @@ func fmtPResampled(p float64, b int) string {
 		return "–"
 	}
 	if floor := 1 / float64(b); p < floor {
-		return "< " + trimFloat(floor, 2)
+		return "< " + ceilSig(floor, 2)
 	}
 	return fmtP(p)
+}
+
+// ceilSig prints v > 0 to sig significant digits rounded up, so that a
+// bound printed after "<" is not below the true one (1/184 = 0.005435 is
+// "0.0055", not "0.0054"); a v that the digits hold exactly (1/500) prints
+// as it is.
+func ceilSig(v float64, sig int) string {
+	m := math.Pow(10, math.Floor(math.Log10(v))-float64(sig-1))
+	q := v / m
+	if r := math.Round(q); math.Abs(q-r) <= 1e-9*q {
+		q = r
+	} else {
+		q = math.Ceil(q)
+	}
+	return trimFloat(q*m, sig)
 }
 
 // reviewerText answers "is the score a property of the model or of the

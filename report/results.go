@@ -302,6 +302,10 @@ type Score struct {
 	PartialROC []PartialROC `json:"partial_roc"`
 	Thresholds []Threshold  `json:"thresholds"`
 	Boyce      *Boyce       `json:"boyce"`
+
+	// BoyceUndefined says why Boyce is null on a scored pair (fewer than 3
+	// windows with background area, or no variation); absent otherwise.
+	BoyceUndefined string `json:"boyce_undefined_reason,omitempty"`
 }
 
 // PartialROC is the partial ROC result for one allowable omission E.
@@ -449,6 +453,18 @@ type Paired struct {
 	// TestSetShift is how much the change of test set moved the score:
 	// (A on its own points - B on its own points) - Diff.
 	TestSetShift float64 `json:"test_set_shift"`
+}
+
+// BootstrapReadable tells whether the published half-size bootstrap of pr,
+// on an extent of n test points, gives an interval and a P: at least two
+// of its resamples formed a ratio and n is at least MinPairedPoints (the
+// cut-off of the paired differences). Each resample holds a share of
+// the n points, so on fewer it is a handful of them (with one test point
+// every resample is that point: an interval of zero width and a P of 0,
+// printed "< 1/B"), no basis for an interval or a test. The full-sample
+// ratio and the resamples' mean are given either way.
+func BootstrapReadable(pr PartialROC, n int) bool {
+	return pr.Iterations-pr.NotFormed >= 2 && n >= MinPairedPoints
 }
 
 // Judged tells whether p rests on enough common test points to be judged

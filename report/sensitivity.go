@@ -31,6 +31,12 @@ const (
 	// a reading against a null (with 3 points the interval can even have
 	// zero width). Its position is "too_few" and its reading ReadingTooFew.
 	MinPairedPoints = 10
+	// MinPercentileResamples: with fewer resamples than this a 2.5th and
+	// a 97.5th percentile do not lie inside the resampled values (1/0.025
+	// = 40; type 7 interpolates them toward the most extreme ones), so
+	// the run warns that the percentile intervals, and what is read from
+	// them, are not reliable (our cut-off).
+	MinPercentileResamples = 40
 	// KmPerDegree is the length of one degree of latitude used to turn
 	// geographic cell widths into km (approximation: 40,075 km / 360 at the
 	// equator, scaled by cos(latitude) for longitude).
@@ -184,8 +190,9 @@ type Spread struct {
 	// BootSD holds the per-extent uncertainty drawn in the figure (0 when
 	// the metric has none): for AUC the SD over the full-size paired
 	// resamples (Score.AUCBootSD), for partial ROC the SD of the published
-	// half-size bootstrap. BootLow/BootHigh: value -+ SD for AUC, the
-	// published bootstrap interval for partial ROC.
+	// half-size bootstrap (0, with BootLow = BootHigh = the value, where
+	// BootstrapReadable is false). BootLow/BootHigh: value -+ SD for AUC,
+	// the published bootstrap interval for partial ROC.
 	BootSD   []float64 `json:"boot_sd,omitempty"`
 	BootLow  []float64 `json:"boot_low,omitempty"`
 	BootHigh []float64 `json:"boot_high,omitempty"`
@@ -263,7 +270,9 @@ type ModelVerdict struct {
 	BaseDefined bool               `json:"base_defined"`
 	Diffs       []ExtentDifference `json:"differences"`
 	// Largest is the index in Diffs of the defined difference with the
-	// largest |Diff| (-1 when none).
+	// largest |Diff| (-1 when none); for an extent-sensitive verdict, of
+	// the largest judged one (on MinPairedPoints or more common test
+	// points), which the verdict rests on.
 	Largest int `json:"largest"`
 	// Undefined lists extents where the difference could not be formed.
 	Undefined []string `json:"undefined_on"`

@@ -8,6 +8,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 const sampleDir = "../testdata/report"
@@ -486,7 +488,12 @@ func TestStatsWorkedExamples(t *testing.T) {
 		p    float64
 		b    int
 		want string
-	}{{0, 500, "< 0.002"}, {0, 1000, "< 0.001"}, {0.001, 1000, "0.001"}, {0.0004, 5000, "< 0.001"}, {0.25, 200, "0.250"}} {
+	}{{0, 500, "< 0.002"}, {0, 1000, "< 0.001"}, {0.001, 1000, "0.001"}, {0.0004, 5000, "< 0.001"}, {0.25, 200, "0.250"},
+		// The bound 1/b rounded up to two significant digits (1/184 =
+		// 0.0054348, 1/997 = 0.0010030, 1/3 = 0.333: by hand), never below
+		// it: "< 0.0054" claimed a resolution the 184 formed resamples of
+		// HI's sweep did not have.
+		{0, 184, "< 0.0055"}, {0, 997, "< 0.0011"}, {0, 3, "< 0.34"}, {0, 200, "< 0.005"}, {0, 10, "< 0.1"}, {0, 1, "< 1"}} {
 		if got := fmtPResampled(c.p, c.b); got != c.want {
 			t.Errorf("fmtPResampled(%v, %d) = %q, want %q", c.p, c.b, got, c.want)
 		}
@@ -636,8 +643,13 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 			}
 		}},
 		{"distances not computed", func(r *Results) {
+			// The run measures them whenever a training point is scored
+			// (all 0 with training points is every test point on one).
 			for i := range r.Points {
 				r.Points[i].NearestTrainKm = 0
+				if r.Points[i].Role == vocab.RoleTrain {
+					r.Points[i].Status = vocab.PointOutsideRaster
+				}
 			}
 		}, func(t *testing.T, r *Results, err error) {
 			if err != nil {

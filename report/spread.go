@@ -105,7 +105,7 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 			if !p.Defined {
 				return 0, false, 0, 0, 0, false
 			}
-			hasBoot = p.Iterations-p.NotFormed >= 2
+			hasBoot = BootstrapReadable(p, s.TestPoints)
 			return p.Ratio, true, p.RatioSD, p.CILow, p.CIHigh, hasBoot
 		}
 	case MetricOmission, MetricAreaFraction:

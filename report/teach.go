@@ -27,6 +27,14 @@ type teachCell struct {
 	TestPoints     int       `json:"test_points"`
 	X              []float64 `json:"x"`
 	Y              []float64 `json:"y"`
+
+	// PartialROCNoInterval: the percentiles of the published bootstrap
+	// are not given (BootstrapReadable is false; PartialROCLow and
+	// PartialROCHigh are 0).
+	PartialROCNoInterval bool `json:"partial_roc_no_interval,omitempty"`
+	// AUCSDNone: there is no SD of AUC over the paired resamples (fewer
+	// than 2 test points or resamples; AUCSD is 0).
+	AUCSDNone bool `json:"auc_sd_none,omitempty"`
 }
 
 type teachExtent struct {
@@ -101,9 +109,17 @@ func teachData(r *Results) ([]byte, error) {
 				continue
 			}
 			c.Scored, c.AUC, c.AUCSD, c.TestPoints = true, sc.AUC, sc.AUCBootSD, sc.TestPoints
+			if sc.TestPoints < 2 || r.Settings.PairedResamples < 2 {
+				c.AUCSD, c.AUCSDNone = 0, true
+			}
 			for _, pr := range sc.PartialROC {
 				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-					c.PartialROC, c.PartialROCLow, c.PartialROCHigh, c.PartialROCOK = pr.Ratio, pr.CILow, pr.CIHigh, true
+					c.PartialROC, c.PartialROCOK = pr.Ratio, true
+					if BootstrapReadable(pr, sc.TestPoints) {
+						c.PartialROCLow, c.PartialROCHigh = pr.CILow, pr.CIHigh
+					} else {
+						c.PartialROCNoInterval = true
+					}
 				}
 			}
 			for _, t := range sc.Thresholds {

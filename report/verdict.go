@@ -93,6 +93,15 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	return d
 }
 
+// baseWord is "the base extent", or "the reference extent" when base is
+// another extent standing in for a base extent that could not be scored.
+func baseWord(base string) string {
+	if base != vocab.BaseID {
+		return "the reference extent"
+	}
+	return "the base extent"
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
@@ -100,7 +109,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
 	if bs == nil {
-		mv.Sentence = fmt.Sprintf("%s of %s: not scored on the base extent %s, so no difference from it can be formed.", upperFirst(m.Label), model, a.base)
+		mv.Sentence = fmt.Sprintf("%s of %s: not scored on %s %s, so no difference from it can be formed.", upperFirst(m.Label), model, baseWord(a.base), a.base)
 		return mv
 	}
 	var baseOK bool
@@ -156,10 +165,16 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
 		if !baseOK {
-			why = fmt.Sprintf("it is undefined on %s, the base extent%s", a.base, undefinedWhy(m, bs))
+			why = fmt.Sprintf("it is undefined on %s, %s%s", a.base, baseWord(a.base), undefinedWhy(m, bs))
 		}
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return
+	}
+	if outside > 0 && mv.Diffs[mv.Largest].Position == positionTooFew {
+		// An extent-sensitive verdict rests on the judged differences:
+		// name the largest of those, not one on too few test points
+		// (listed as not judged after it).
+		mv.Largest = largestJudged(mv.Diffs)
 	}
 	big := mv.Diffs[mv.Largest]
 	largest := "the largest is " + differenceText(big, m.Tolerance)
@@ -183,8 +198,8 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	switch {
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
-		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s",
-			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn)
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s%s",
+			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
@@ -194,8 +209,15 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
 			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin)
 	case big.Diff == 0 && big.Low == 0 && big.High == 0:
-		// Undetermined only for the differences on too few test points,
-		// every one of them 0: no extent is "the largest".
+		// Every difference is 0: no extent is "the largest". Undetermined
+		// for the differences on too few test points, or for an interval
+		// that straddles the tolerance around a difference of 0 (named,
+		// whichever extent it is on).
+		if straddle := straddleText(mv.Diffs, ExtentDifference{}, m.Tolerance); straddle != "" {
+			mv.Sentence = fmt.Sprintf("%s is undetermined: every difference from %s is 0, but the paired intervals are too wide to tell whether it moves by more than %s%s.%s%s",
+				name, a.base, tol, straddle, notOn, tooFewText(mv.Diffs))
+			break
+		}
 		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
 			name, tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
@@ -307,6 +329,21 @@ func tooFewText(ds []ExtentDifference) string {
 	return fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
 }
 
+// largestJudged is the index in ds of the defined difference with the
+// largest |Diff| among those judged (not on too few test points), or -1.
+func largestJudged(ds []ExtentDifference) int {
+	k := -1
+	for i, d := range ds {
+		if !d.Defined || d.Position == positionTooFew {
+			continue
+		}
+		if k < 0 || math.Abs(d.Diff) > math.Abs(ds[k].Diff) {
+			k = i
+		}
+	}
+	return k
+}
+
 // definedDiffs returns the defined differences of ds.
 func definedDiffs(ds []ExtentDifference) []ExtentDifference {
 	var out []ExtentDifference
@@ -327,8 +364,12 @@ func allInside(ds []ExtentDifference) bool {
 	return true
 }
 
-// undefinedWhy names why a partial ROC ratio is undefined on s.
+// undefinedWhy names why a partial ROC ratio or a Boyce index is
+// undefined on s.
 func undefinedWhy(m MetricInfo, s *Score) string {
+	if m.Kind == MetricBoyce && s.Boyce == nil && s.BoyceUndefined != "" {
+		return " (" + s.BoyceUndefined + ")"
+	}
 	if m.Kind != MetricPartialROC {
 		return ""
 	}

@@ -164,8 +164,12 @@
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
-        row("AUC", fx(c.auc, 3) + " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")");
-        if (c.partial_roc_ok) { row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + " (full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"); }
+        row("AUC", fx(c.auc, 3) + (c.auc_sd_none ? "" : " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")"));
+        if (c.partial_roc_ok) {
+          row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + (c.partial_roc_no_interval ?
+            " (full sample; too few test points for the percentiles of " + data.bootstrap + ")" :
+            " (full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"));
+        }
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
           row("predicted area at that threshold (share of the extent)", fx(c.area_fraction, 3));

@@ -56,10 +56,20 @@ func scoresCSV(r *report.Results) []byte {
 		}
 		row("auc", "", "", sc.AUC)
 		row("auc_unweighted", "", "", sc.AUCUnweighted)
-		row("auc_train", "", "", sc.AUCTrain)
-		row("auc_boot_sd", "", "", sc.AUCBootSD)
-		row("auc_se", "", "", sc.AUCSE)
-		row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
+		if sc.TrainPoints > 0 {
+			// results.json holds 0 without training points: no AUC.
+			row("auc_train", "", "", sc.AUCTrain)
+		}
+		if sc.TestPoints >= 2 {
+			// With one test point there is no spread to measure:
+			// results.json holds 0 (or rounding dust), not an SE; nor
+			// is there an SD of one resample (--iterations 1).
+			if r.Settings.PairedResamples >= 2 {
+				row("auc_boot_sd", "", "", sc.AUCBootSD)
+			}
+			row("auc_se", "", "", sc.AUCSE)
+			row("auc_unweighted_se_delong", "", "", sc.AUCUnweightedSEDeLong)
+		}
 		for _, p := range sc.PartialROC {
 			e := ftoa(p.E)
 			if !p.Defined {
@@ -75,6 +85,11 @@ func scoresCSV(r *report.Results) []byte {
 				continue
 			}
 			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
+			if !report.BootstrapReadable(p, sc.TestPoints) {
+				// Fewer test points than the cut-off (or one resample
+				// formed): no percentiles and no P, as in the report.
+				continue
+			}
 			row("partial_roc_resample_p2_5", e, "", p.CILow)
 			row("partial_roc_resample_p97_5", e, "", p.CIHigh)
 			row("partial_roc_p_value", e, "", p.PValue)

@@ -1,0 +1,172 @@
+package report
+
+import (
+	"strings"
+	"testing"
+
+	"areasweep/extent/vocab"
+	"areasweep/metrics"
+)
+
+// TestSensitiveVerdictCitesJudged: an extent-sensitive verdict rests on
+// the differences judged against the tolerance; it named as "the largest"
+// a difference on too few common test points (not judged), which the
+// sentence then seemed to count among those beyond the tolerance (HI's
+// sweep: 10 test points, one extent holding 9). The differences are those
+// of the sample run (results.json of testdata/report): good's AUC on
+// whole, +0.138 (0.067 to 0.209), is the largest of the judged ones.
+func TestSensitiveVerdictCitesJudged(t *testing.T) {
+	r := loadSample(t)
+	if setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
+		p.CommonPoints = 6
+		p.Diff, p.Low, p.High = -0.3, -0.35, -0.25
+	}) != 1 {
+		t.Fatal("no record of good on points_b25")
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	if mv.Verdict != JudgementSensitive {
+		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
+	}
+	if mv.Largest < 0 || mv.Diffs[mv.Largest].Extent != "whole" {
+		t.Errorf("largest %d: %+v", mv.Largest, mv.Diffs)
+	}
+	checkWords(t, "sentence", mv.Sentence,
+		[]string{"the largest is +0.138 on whole (95% interval +0.067 to +0.209)", "Not judged, on fewer than 10 common test points (our cut-off): points_b25 (6)."},
+		[]string{"the largest is -0.300"})
+	checkWords(t, "headline", s.Headline,
+		[]string{"is extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.067 to +0.209)"},
+		[]string{"-0.300 on points_b25"})
+	checkWords(t, "methods", methodsText(r), []string{"extent-sensitive (largest difference from base +0.138 on whole"}, []string{"-0.300 on points_b25"})
+}
+
+// TestReferenceExtentVerdictWords: where the base extent could not be
+// scored and another extent stands in for it, a verdict left undetermined
+// by a score undefined there called that extent "the base extent" (HI's
+// sweep: every test point outside the base region; "it is undefined on
+// region_500km, the base extent"), and so did the sentence of a model not
+// scored on it.
+func TestReferenceExtentVerdictWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	ref := analyzed(t, r).BaseExtent
+	if ref == vocab.BaseID {
+		t.Fatal("no reference extent")
+	}
+	key := ""
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		if sc.Extent != ref {
+			continue
+		}
+		if sc.Model == "good" && len(sc.PartialROC) > 0 {
+			sc.PartialROC[0].Defined, sc.PartialROC[0].Reason = false, "the curve reaches 1 - E only at x = 1"
+			key = MetricKeyPartialROC(sc.PartialROC[0].E)
+		}
+		if sc.Model == "truncated" {
+			sc.Scored, sc.NotScored = false, "constant suitability"
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(key, "good")
+	if mv == nil {
+		t.Fatalf("no verdict %s of good", key)
+	}
+	checkWords(t, "undefined there", mv.Sentence, []string{"it is undefined on " + ref + ", the reference extent"}, []string{"the base extent"})
+	mv = s.findModelVerdict("auc", "truncated")
+	if mv == nil {
+		t.Fatal("no AUC verdict of truncated")
+	}
+	checkWords(t, "not scored there", mv.Sentence, []string{"not scored on the reference extent " + ref}, []string{"the base extent"})
+}
+
+// TestAllZeroStraddleNotTooFew: every difference from the base extent 0,
+// all on enough test points, one interval straddling the tolerance (HI's
+// sweep: a model of three values, whose Boyce index was 0.609 on every
+// extent, the resamples of points_50km's 80 test points reaching -0.563).
+// The verdict blamed "too few test points" and named no interval; the
+// straddling interval is what leaves it undetermined.
+func TestAllZeroStraddleNotTooFew(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, 0, 0, 0
+		}
+	}
+	if setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
+		t.Fatal("no Boyce record of good on hull")
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("boyce", "good")
+	if mv == nil || mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	checkWords(t, "sentence", mv.Sentence,
+		[]string{"every difference from base is 0, but the paired intervals are too wide to tell whether it moves by more than ±0.1",
+			"straddles ±0.1 on 1 of", "on hull (95% interval -0.563 to +0.000)"},
+		[]string{"too few test points"})
+}
+
+// TestIndependenceZeroDistances: test points that coincide with training
+// points (0 km, to the metre) were reported as "Distances from test to
+// training points were not computed, so their independence is not
+// assessed" (HI's sweep: the test points given again as the training
+// points): the worst dependence read as no information. The run measures
+// the distances whenever a training point is scored, so 0 is a distance.
+func TestIndependenceZeroDistances(t *testing.T) {
+	r := loadSample(t)
+	n := 0
+	for i := range r.Points {
+		if p := &r.Points[i]; p.Role == vocab.RoleTest && p.Status == vocab.PointScored {
+			p.NearestTrainKm = 0
+			n++
+		}
+	}
+	ind := analyzed(t, r).Independence
+	if !ind.Defined || !ind.Warn || ind.NearShare != 1 || ind.N != n {
+		t.Fatalf("independence: %+v", ind)
+	}
+	checkWords(t, "sentence", ind.Sentence, []string{"test points lie on a training point (0 km from the nearest, to the metre); 100% lie within 3 cell widths"},
+		[]string{"not computed"})
+	for i := range r.Points {
+		if r.Points[i].Role == vocab.RoleTrain {
+			r.Points[i].Status = vocab.PointOutsideRaster
+		}
+	}
+	if ind := analyzed(t, r).Independence; ind.Defined || !strings.Contains(ind.Sentence, "not computed") {
+		t.Errorf("without training points: %+v", ind)
+	}
+}
+
+// TestBoyceUndefinedSaysWhy: a model of two values has its Boyce index
+// undefined (only 2 windows hold background area: HI's sweep); the
+// verdict said "it is undefined on base, the base extent." without why,
+// as results.json kept no reason. The run records metrics.Boyce's reason
+// and the verdict gives it, as it does for partial ROC.
+func TestBoyceUndefinedSaysWhy(t *testing.T) {
+	var sc Score
+	sc.SetScores(metrics.Scores{Scored: true, TestN: 5, Boyce: metrics.Boyce{Reason: metrics.ReasonBoyceWindows}}, 1)
+	if sc.Boyce != nil || sc.BoyceUndefined != metrics.ReasonBoyceWindows {
+		t.Fatalf("Boyce %v, reason %q", sc.Boyce, sc.BoyceUndefined)
+	}
+	r := loadSample(t)
+	for i := range r.Scores {
+		if s := &r.Scores[i]; s.Model == "good" && s.Extent == vocab.BaseID {
+			s.Boyce, s.BoyceUndefined = nil, metrics.ReasonBoyceWindows
+		}
+	}
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "boyce" && p.Model == "good" {
+			p.Defined = false // no difference from an undefined index
+		}
+	}
+	mv := analyzed(t, r).findModelVerdict("boyce", "good")
+	if mv == nil {
+		t.Fatal("no Boyce verdict of good")
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"it is undefined on base, the base extent (fewer than 3 windows with background area)"}, nil)
+}
