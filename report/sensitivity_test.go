@@ -492,7 +492,7 @@ func TestStatsWorkedExamples(t *testing.T) {
 		// The bound 1/b rounded up to two significant digits (1/184 =
 		// 0.0054348, 1/997 = 0.0010030, 1/3 = 0.333: by hand), never below
 		// it: "< 0.0054" claimed a resolution the 184 formed resamples of
-		// HI's sweep did not have.
+		// the audit of edge cases did not have.
 		{0, 184, "< 0.0055"}, {0, 997, "< 0.0011"}, {0, 3, "< 0.34"}, {0, 200, "< 0.005"}, {0, 10, "< 0.1"}, {0, 1, "< 1"}} {
 		if got := fmtPResampled(c.p, c.b); got != c.want {
 			t.Errorf("fmtPResampled(%v, %d) = %q, want %q", c.p, c.b, got, c.want)

@@ -12,7 +12,7 @@ import (
 // report.MinPairedPoints the published bootstrap's percentiles and P are
 // left out of scores.csv, as from the report (with one test point every
 // resample is that point: a P of 0 read as "< 1/B" and an interval of
-// zero width; HI's sweep). The full-sample ratio and the resamples' mean
+// zero width; an audit of edge cases). The full-sample ratio and the resamples' mean
 // stay.
 func TestScoresCSVBootstrapTooFew(t *testing.T) {
 	r, err := report.Load("../../../testdata/report/sample_results.json")
@@ -58,7 +58,7 @@ func TestScoresCSVBootstrapTooFew(t *testing.T) {
 // TestScoresCSVNoNumberWithoutPoints: scores.csv wrote auc_train 0 for an
 // extent holding no training point, and auc_se 0 (auc_boot_sd a rounding
 // dust of 2e-15, auc_unweighted_se_delong 0) for an extent holding one test
-// point (HI's sweep: an extra extent around one test point), numbers that
+// point (an audit of edge cases: an extra extent around one test point), numbers that
 // read as an AUC of 0 and as no uncertainty; results.json holds 0 there by
 // its documented convention. The rows are left out, as the report shows a
 // dash.
@@ -98,7 +98,7 @@ func TestScoresCSVNoNumberWithoutPoints(t *testing.T) {
 }
 
 // TestScoresCSVNoSDOfOneResample: with --iterations 1 the SD of AUC over
-// the paired resamples is the SD of one value, written as 0 (HI's sweep);
+// the paired resamples is the SD of one value, written as 0 (an audit of edge cases);
 // the row is left out.
 func TestScoresCSVNoSDOfOneResample(t *testing.T) {
 	r, err := report.Load("../../../testdata/report/sample_results.json")

@@ -11,7 +11,7 @@ import (
 // TestSensitiveVerdictCitesJudged: an extent-sensitive verdict rests on
 // the differences judged against the tolerance; it named as "the largest"
 // a difference on too few common test points (not judged), which the
-// sentence then seemed to count among those beyond the tolerance (HI's
+// sentence then seemed to count among those beyond the tolerance (an audit of edge
 // sweep: 10 test points, one extent holding 9). The differences are those
 // of the sample run (results.json of testdata/report): good's AUC on
 // whole, +0.138 (0.067 to 0.209), is the largest of the judged ones.
@@ -42,7 +42,7 @@ func TestSensitiveVerdictCitesJudged(t *testing.T) {
 
 // TestReferenceExtentVerdictWords: where the base extent could not be
 // scored and another extent stands in for it, a verdict left undetermined
-// by a score undefined there called that extent "the base extent" (HI's
+// by a score undefined there called that extent "the base extent" (an audit of edge
 // sweep: every test point outside the base region; "it is undefined on
 // region_500km, the base extent"), and so did the sentence of a model not
 // scored on it.
@@ -85,7 +85,7 @@ func TestReferenceExtentVerdictWords(t *testing.T) {
 }
 
 // TestAllZeroStraddleNotTooFew: every difference from the base extent 0,
-// all on enough test points, one interval straddling the tolerance (HI's
+// all on enough test points, one interval straddling the tolerance (an audit of edge
 // sweep: a model of three values, whose Boyce index was 0.609 on every
 // extent, the resamples of points_50km's 80 test points reaching -0.563).
 // The verdict blamed "too few test points" and named no interval; the
@@ -114,7 +114,7 @@ func TestAllZeroStraddleNotTooFew(t *testing.T) {
 // TestIndependenceZeroDistances: test points that coincide with training
 // points (0 km, to the metre) were reported as "Distances from test to
 // training points were not computed, so their independence is not
-// assessed" (HI's sweep: the test points given again as the training
+// assessed" (an audit of edge cases: the test points given again as the training
 // points): the worst dependence read as no information. The run measures
 // the distances whenever a training point is scored, so 0 is a distance.
 func TestIndependenceZeroDistances(t *testing.T) {
@@ -143,7 +143,7 @@ func TestIndependenceZeroDistances(t *testing.T) {
 }
 
 // TestBoyceUndefinedSaysWhy: a model of two values has its Boyce index
-// undefined (only 2 windows hold background area: HI's sweep); the
+// undefined (only 2 windows hold background area: an audit of edge cases); the
 // verdict said "it is undefined on base, the base extent." without why,
 // as results.json kept no reason. The run records metrics.Boyce's reason
 // and the verdict gives it, as it does for partial ROC.

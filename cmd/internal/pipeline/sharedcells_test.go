@@ -9,8 +9,8 @@ import (
 )
 
 // TestSharedTestCellsWording: the --no-thin warning counted the distinct
-// cells as "1 distinct cells" when every test point shares one cell (HI's
-// sweep: 12 test points in one cell); one cell is "1 distinct cell".
+// cells as "1 distinct cells" when every test point shares one cell (an audit of edge
+// cases: 12 test points in one cell); one cell is "1 distinct cell".
 func TestSharedTestCellsWording(t *testing.T) {
 	for _, c := range []struct {
 		cells []int

@@ -8,8 +8,8 @@ import (
 
 // TestBootstrapTooFewPoints: the published half-size bootstrap of the
 // partial ROC ratio gave, on an extent of one test point, an interval of
-// zero width and a P printed "< 0.005" (every resample is that point: HI's
-// sweep), a test the data cannot support. On fewer than MinPairedPoints
+// zero width and a P printed "< 0.005" (every resample is that point: an
+// audit of edge cases), a test the data cannot support. On fewer than MinPairedPoints
 // test points (or fewer than 2 resamples formed) the report gives the
 // full-sample ratio and the resamples' mean, without percentiles or P.
 func TestBootstrapTooFewPoints(t *testing.T) {
@@ -89,7 +89,7 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 }
 
 // TestScoresTableNoTrainingAUC: the Scores table showed "0.000" as the AUC
-// on the training records of an extent holding none (HI's sweep: an extra
+// on the training records of an extent holding none (an audit of edge cases: an extra
 // extent around one test point); results.json holds 0 there by
 // convention, the table a dash.
 func TestScoresTableNoTrainingAUC(t *testing.T) {
@@ -116,7 +116,7 @@ func TestScoresTableNoTrainingAUC(t *testing.T) {
 
 // TestPartialROCTableE: the Partial ROC table printed E with two decimals,
 // so --e 0.001 read "0.00" and --e 0.999 "1.00", values E cannot take
-// (HI's sweep); E is printed as given.
+// (an audit of edge cases); E is printed as given.
 func TestPartialROCTableE(t *testing.T) {
 	r := analyzedSample(t)
 	for i := range r.Scores {
@@ -134,8 +134,8 @@ func TestPartialROCTableE(t *testing.T) {
 }
 
 // TestScoresTableNoSDOfOneResample: with --iterations 1 the Scores table
-// showed "0.0000" as the AUC resample SD, the SD of one value (HI's
-// sweep); it shows a dash.
+// showed "0.0000" as the AUC resample SD, the SD of one value (an audit of edge
+// cases); it shows a dash.
 func TestScoresTableNoSDOfOneResample(t *testing.T) {
 	r := analyzedSample(t)
 	r.Settings.PairedResamples = 1

@@ -8,7 +8,7 @@ import (
 
 // TestFewIterationsWarned: with --iterations below 40 the percentile
 // intervals of the paired resamples were read into verdicts, model
-// comparisons and readings against a null without a word (HI's sweep:
+// comparisons and readings against a null without a word (an audit of edge cases:
 // --iterations 2 judged the partial ROC ratio extent-sensitive from the
 // 2.5th and 97.5th percentiles of two resampled differences). The run
 // warns, on the terminal and in results.json; from 40 on it does not.
