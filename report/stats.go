@@ -16,7 +16,9 @@ type olsFit struct {
 //	b = Sxy / Sxx,  a = mean(y) - b mean(x)
 //	r^2 = 1 - SSE / Syy,  SSE = sum (y - a - b x)^2
 //
-// It returns false when n < 2 or all x are equal.
+// It returns false when n < 2 or all x are equal. r^2 is defined only from
+// n = 3 on and when the y are not all equal: through two points the line
+// passes exactly, so r^2 = 1 whatever they are, which describes nothing.
 func ols(x, y []float64) (olsFit, bool) {
 	n := len(x)
 	f := olsFit{n: n}
@@ -41,7 +43,7 @@ func ols(x, y []float64) (olsFit, bool) {
 		e := y[i] - f.a - f.b*x[i]
 		sse += e * e
 	}
-	if syy > 0 {
+	if syy > 0 && n >= 3 {
 		f.r2 = 1 - sse/syy
 		f.r2Defined = true
 	}

@@ -100,6 +100,11 @@
 #     ratios, undefined for coarse, now say "no extent has it defined for
 #     every model"; sentences and notes under sensitivity only, every
 #     number and scores.csv unchanged);
+#   - rewritten at the 2026-12-03 review of descriptions (a nested chain
+#     of two members gives no r^2 of its AUC-on-log2(area) line, which
+#     passes through both points and so had r^2 = 1 whatever they were:
+#     the demo's hull chains now have r2_defined false and r2 0;
+#     results.json only, every score and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
