@@ -36,7 +36,7 @@ are checked but not used, and its help lists only the flags that shape the famil
 			if runF != nil {
 				return runF(&opts)
 			}
-			return sweep(&opts, nil)
+			return opts.fromStudy(sweep(&opts, nil), runFlagRE)
 		},
 	}
 	bindSweepFlags(cmd.Flags(), &opts, false)

@@ -31,6 +31,9 @@ type RunOptions struct {
 	// Shard is --shard I/N (run only); N = 0 when not given.
 	Shard shardFlag
 	pipeline.Options
+	// fromFile holds the settings the study file gave and the command
+	// line did not (resolve), for fromStudy.
+	fromFile map[string]bool
 }
 
 // maxBuffers bounds each buffer list (our choice); the family holds at
@@ -88,7 +91,7 @@ func sweepE(opts *RunOptions, runF func(*RunOptions) error) func(*cobra.Command,
 		if runF != nil {
 			return runF(opts)
 		}
-		return sweep(opts, nil)
+		return opts.fromStudy(sweep(opts, nil), runFlagRE)
 	}
 }
 
@@ -254,13 +257,15 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 			return err
 		}
 		st.Apply(&o.Values, f.Changed)
+		o.fromFile = map[string]bool{}
+		for k := range *st {
+			if !f.Changed(k) {
+				o.fromFile[k] = true
+			}
+		}
 		if err := o.validate(); err != nil {
-			// A setting the message names by its flag, given in the study
-			// file and not on the command line: say where it came from.
-			if m := flagNameRE.FindStringSubmatch(err.Error()); m != nil && !f.Changed(m[1]) {
-				if _, inFile := (*st)[m[1]]; inFile {
-					return fmt.Errorf("%w (the value comes from the study file %s, key %s)", err, o.Study, m[1])
-				}
+			if e := o.fromStudy(err, flagNameRE); e != err {
+				return e
 			}
 			if len(*st) == 0 && strings.HasPrefix(err.Error(), "no ") && strings.Contains(err.Error(), " given: add --") {
 				// An empty file (not saved, or the wrong one) sets
@@ -276,6 +281,26 @@ func (o *RunOptions) resolve(f *pflag.FlagSet) error {
 
 // flagNameRE finds the first flag a validation message names.
 var flagNameRE = regexp.MustCompile(`--([a-z][a-z-]*)`)
+
+// runFlagRE finds the flag a message of the run names first, at its start
+// ("--occurrences-crs "3035" is not a CRS PROJ knows"): later in a
+// message of the run a flag is more often advice than the culprit.
+var runFlagRE = regexp.MustCompile(`^--([a-z][a-z-]*)`)
+
+// fromStudy returns err saying where the setting it names by its flag
+// (the first match of re) came from when the study file gave it and the
+// command line did not: a user who wrote "occurrences-crs: 3035" in the
+// file is told about the file and key, not only about a flag never typed.
+// Any other err (nil included) is returned as it is.
+func (o *RunOptions) fromStudy(err error, re *regexp.Regexp) error {
+	if err == nil || len(o.fromFile) == 0 {
+		return err
+	}
+	if m := re.FindStringSubmatch(err.Error()); m != nil && o.fromFile[m[1]] {
+		return fmt.Errorf("%w (the value comes from the study file %s, key %s)", err, o.Study, m[1])
+	}
+	return err
+}
 
 // validate checks the settings that need no file access: the names, the
 // inputs given, then the numbers, and --out; the first problem is

@@ -39,3 +39,43 @@ func TestEmptyStudyFile(t *testing.T) {
 		t.Errorf("iterations 0 with an empty study file: exit %d: %s", code, se.String())
 	}
 }
+
+// TestRunErrorNamesStudyKey: a value the run itself refuses (not the
+// settings check: PROJ is asked about --occurrences-crs when the points
+// are placed) is attributed to the study file and key that gave it; the
+// message named only the flag, which the user never typed. Given on the
+// command line, the same value gets no such words; a message that names
+// a flag the file did not set gets none either.
+func TestRunErrorNamesStudyKey(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := t.TempDir()
+	study := filepath.Join(dir, "study.yaml")
+	body := "model: m=" + s.model + "\noccurrences: " + s.occ + "\nregion: " + s.region + "\niterations: 5\noccurrences-crs: 3035\n"
+	if err := os.WriteFile(study, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	from := "(the value comes from the study file " + study + ", key occurrences-crs)"
+	for _, c := range []struct {
+		name  string
+		args  []string
+		given bool // the message says where the value came from
+	}{
+		{"from the file", []string{"run", "--study", study}, true},
+		{"extents, from the file", []string{"extents", "--study", study}, true},
+		{"on the command line", []string{"run", "--study", study, "--occurrences-crs", "3857"}, false},
+	} {
+		out := filepath.Join(dir, "out-"+strings.ReplaceAll(c.name, " ", "-"))
+		var so, se strings.Builder
+		code := Main(append(c.args, "--out", out, "--quiet"), nil, &so, &se)
+		msg := se.String()
+		if code != 2 || !strings.Contains(msg, "is not a CRS PROJ knows") {
+			t.Fatalf("%s: exit %d: %s", c.name, code, msg)
+		}
+		if got := strings.Contains(msg, from); got != c.given {
+			t.Errorf("%s: says where the value came from: %v, want %v: %s", c.name, got, c.given, msg)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%s: %s was created", c.name, out)
+		}
+	}
+}
