@@ -101,6 +101,21 @@ func TestSuspectInputsWarned(t *testing.T) {
 		se, ws := run(t, "--model", "m="+ed50, "--occurrences", s.occ)
 		says(t, se, ws, suspect[3], "model m", "ed50.tif", "EPSG:4230", " m (", "gdalwarp -t_srs EPSG:4326")
 	})
+	t.Run("a null whose .aux.xml is cut short", func(t *testing.T) {
+		// The nodata value it was meant to set is not applied (GDAL skips
+		// a file that is not well-formed XML): warned, and the run goes on.
+		cut := filepath.Join(s.dir, "cutaux.tif")
+		data, err := os.ReadFile(noNoData)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(cut, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(cut+".aux.xml", []byte(`<PAMDataset><PAMRasterBand band="1"><NoDataValue>-9999</NoDataValue`), 0o644)
+		se, ws := run(t, "--model", "m="+s.model, "--null", "n="+cut, "--occurrences", s.occ)
+		says(t, se, ws, "cutaux.tif.aux.xml appears to set a nodata value", "null n:", "not well-formed XML", "gdal_translate "+cut)
+	})
 	t.Run("-9999 without a nodata value", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+noNoData, "--occurrences", s.occ)
 		says(t, se, ws, suspect[0], "model m", "nonodata.tif", "-9999", "scored as data", "gdal_translate -a_nodata -9999 "+noNoData)

@@ -54,23 +54,8 @@ func auxProblem(path string) (what string, declared bool) {
 	}
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
 	declared = bytes.HasPrefix(bytes.TrimLeft(data, " \t\r\n"), []byte("<?xml"))
-	var pam pamDataset
-	dec := xml.NewDecoder(bytes.NewReader(data))
-	// A file that declares a one-byte encoding (ISO-8859-1, windows-1252,
-	// as some tools write) is read as ISO-8859-1: the elements and numbers
-	// read here are ASCII, the same bytes in all of them.
-	dec.CharsetReader = func(_ string, r io.Reader) (io.Reader, error) {
-		b, err := io.ReadAll(r)
-		if err != nil {
-			return nil, err
-		}
-		u := make([]rune, len(b))
-		for i, c := range b {
-			u[i] = rune(c)
-		}
-		return strings.NewReader(string(u)), nil
-	}
-	if dec.Decode(&pam) != nil {
+	pam, err := decodePAM(data)
+	if err != nil {
 		return "", false
 	}
 	ds, err := extent.OpenRaster(path)
@@ -130,6 +115,67 @@ func auxProblem(path string) (what string, declared bool) {
 		what = strings.Join(set[:len(set)-1], ", ") + " and " + set[len(set)-1]
 	}
 	return what, declared
+}
+
+// decodePAM reads the data of an auxiliary file. A file that declares a
+// one-byte encoding (ISO-8859-1, windows-1252, as some tools write) is
+// read as ISO-8859-1: the elements and numbers read here are ASCII, the
+// same bytes in all of them.
+func decodePAM(data []byte) (pamDataset, error) {
+	var pam pamDataset
+	dec := xml.NewDecoder(bytes.NewReader(data))
+	dec.CharsetReader = func(_ string, r io.Reader) (io.Reader, error) {
+		b, err := io.ReadAll(r)
+		if err != nil {
+			return nil, err
+		}
+		u := make([]rune, len(b))
+		for i, c := range b {
+			u[i] = rune(c)
+		}
+		return strings.NewReader(string(u)), nil
+	}
+	err := dec.Decode(&pam)
+	return pam, err
+}
+
+// pamTags are the elements of an auxiliary file that change how the
+// cells are read (pamDataset's), as auxBroken looks for them.
+var pamTags = []struct{ tag, what string }{
+	{"<SRS", "a CRS"}, {"<GeoTransform", "a georeferencing"}, {"<NoDataValue", "a nodata value"}, {"<Scale", "a scale"}, {"<Offset", "an offset"},
+}
+
+// auxBroken says what the raster's auxiliary file path+".aux.xml" appears
+// to set when GDAL cannot read it: a file that is not well-formed XML (cut
+// short, edited by hand) but holds the elements of a CRS, georeferencing,
+// nodata value, scale or offset. GDAL skips such a file (and areasweep
+// reads none), so what it was meant to set is not applied; the file's
+// other content (statistics) does not matter. "" when there is no such
+// file, it is read whole, or it names none of those elements. Which of
+// them the raster holds already cannot be told from a broken file, so the
+// run warns rather than refuses.
+func auxBroken(path string) string {
+	data, err := os.ReadFile(path + ".aux.xml")
+	if err != nil {
+		return ""
+	}
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if _, err := decodePAM(data); err == nil {
+		return ""
+	}
+	var set []string
+	for _, t := range pamTags {
+		if bytes.Contains(data, []byte(t.tag+">")) || bytes.Contains(data, []byte(t.tag+" ")) {
+			set = append(set, t.what)
+		}
+	}
+	if len(set) == 0 {
+		return ""
+	}
+	if len(set) > 1 {
+		return strings.Join(set[:len(set)-1], ", ") + " and " + set[len(set)-1]
+	}
+	return set[0]
 }
 
 // parsePAMNumber reads a number as GDAL writes it in an auxiliary file

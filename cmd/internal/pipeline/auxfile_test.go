@@ -177,3 +177,35 @@ func TestAuxProblemOtherRasters(t *testing.T) {
 		})
 	}
 }
+
+// TestAuxBroken: an auxiliary file GDAL cannot read (not well-formed XML)
+// is named by what it appears to set, so the run can warn that it is not
+// applied; a readable one, one holding only statistics, or none at all
+// gives "". (GDAL 3.6 skips a file that does not parse: checked by hand,
+// gdalinfo on a GeoTIFF of nodata -9999 with the cut file below beside it
+// shows -9999, and -1 with the whole file.)
+func TestAuxBroken(t *testing.T) {
+	good := `<PAMDataset><PAMRasterBand band="1"><NoDataValue>-1</NoDataValue></PAMRasterBand></PAMDataset>`
+	for _, tc := range []struct {
+		name, aux, want string
+	}{
+		{"none", "", ""},
+		{"well-formed", good, ""},
+		{"cut short after the nodata value", good[:len(good)-30], "a nodata value"},
+		{"a CRS and a georeferencing, unclosed", `<PAMDataset><SRS>GEOGCS["WGS 84"]</SRS><GeoTransform>0, 1, 0, 0, 0, -1</GeoTransform>`, "a CRS and a georeferencing"},
+		{"scale and offset with attributes, a stray ampersand", `<PAMDataset><PAMRasterBand band="1"><Scale >2</Scale><Offset >1</Offset> & </PAMRasterBand></PAMDataset>`, "a scale and an offset"},
+		{"statistics only, cut short", `<PAMDataset><PAMRasterBand band="1"><Metadata><MDI key="STATISTICS_MAXIMUM">1</MDI>`, ""},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			p := tinyRaster(t, t.TempDir(), "m.tif", true, false)
+			if tc.aux != "" {
+				if err := os.WriteFile(p+".aux.xml", []byte(tc.aux), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if got := auxBroken(p); got != tc.want {
+				t.Errorf("auxBroken = %q, want %q", got, tc.want)
+			}
+		})
+	}
+}

@@ -104,6 +104,10 @@ func (s *Study) openGrid() error {
 			return fault.BadInput(fmt.Errorf("%s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
 				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s%s", m.who(), m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out, vrt))
 		}
+		if what := auxBroken(m.Path); what != "" {
+			s.warn(fmt.Sprintf("%s: %s.aux.xml appears to set %s of %s, but it is not well-formed XML, so GDAL skips it (and areasweep reads no .aux.xml files): the cells are read as if it were not there; if it was meant to set them, repair the file, copy the raster with GDAL's own tools (e.g. gdal_translate %s %s), and give the copy",
+				m.who(), m.Path, what, m.Path, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_own.tif")))
+		}
 		g, err := extent.OpenGrid(m.Path)
 		if err != nil {
 			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
