@@ -8,6 +8,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 )
@@ -46,6 +47,11 @@ results.json and scores.csv are byte for byte those of a single run.`,
 			opts.Files = args
 			if err := checkWorkers(opts.Workers); err != nil {
 				return err
+			}
+			if opts.Out == "" {
+				// Said before the run is prepared again from the inputs,
+				// as run says it.
+				return fault.BadInput(errors.New("--out is empty; name an output directory"))
 			}
 			if runF != nil {
 				return runF(opts)

@@ -213,6 +213,15 @@ func TestMergeRefuses(t *testing.T) {
 			}
 		})
 	}
+	// An empty --out is refused at once, as run refuses it: before, the
+	// merge prepared the run again from the inputs and logged its first
+	// lines before saying so.
+	t.Run("empty --out", func(t *testing.T) {
+		_, se, code := runBin(t, "merge", "--out", "", two[0], two[1])
+		if code != 2 || strings.TrimSpace(se) != "areasweep: --out is empty; name an output directory" {
+			t.Fatalf("exit %d, want 2 and one line: %q", code, se)
+		}
+	})
 	// An input changed after the shards ran: the merge re-reads it and
 	// refuses, naming the file.
 	t.Run("input changed since", func(t *testing.T) {
