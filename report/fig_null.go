@@ -51,6 +51,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	scale := markerScale(most)
 	lo, hi := math.Inf(1), math.Inf(-1)
 	nulls := map[string]int{}
+	pairModels, pairNulls := map[string]bool{}, map[string]bool{}
 	drawn := 0
 	for _, an := range r.Sensitivity.AboveNull {
 		if an.Metric != "auc" {
@@ -79,9 +80,13 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		gs := markerStyle(i)
 		items = append(items, legendItem{an.Model + " − " + ModelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
+		pairModels[an.Model], pairNulls[an.Null] = true, true
 	}
 	if drawn == 0 {
 		return nil, nil, nil
+	}
+	if len(pairModels) > 1 && len(pairNulls) > 1 {
+		items = factorKey(r, pairModels, pairNulls, nulls)
 	}
 	zero, err := plotter.NewLine(plotter.XYs{{X: lo / 1.25, Y: 0}, {X: hi * 1.25, Y: 0}})
 	if err != nil {
@@ -119,11 +124,7 @@ func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.
 		ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
 		lo, hi = math.Min(lo, x), math.Max(hi, x)
 	}
-	dashes := modelDash(i)
-	if j > 0 {
-		dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
-	}
-	ls = lineStyle(modelColor(i), 1, dashes)
+	ls = lineStyle(modelColor(i), 1, gapDash(j))
 	// A line joins the extents of one nested chain only (chainLines).
 	for _, line := range chainLines(xys, chains) {
 		l, err := plotter.NewLine(line)
@@ -149,6 +150,51 @@ func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.
 	return ls, lo, hi, nil
 }
 
+// gapDashes tell the nulls apart in the model-minus-null figure (colour
+// and marker tell the models): each null's pattern differs from every
+// other's, whatever the model, so that two pairs of one model never share
+// colour, marker and line.
+var gapDashes = [][]vg.Length{
+	nil,
+	{vg.Points(1.5), vg.Points(2)},
+	{vg.Points(5), vg.Points(2.5)},
+	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(9), vg.Points(3)},
+	{vg.Points(5), vg.Points(2), vg.Points(1.5), vg.Points(2), vg.Points(1.5), vg.Points(2)},
+}
+
+// gapDash is the line pattern of the j-th null in the model-minus-null
+// figure.
+func gapDash(j int) []vg.Length { return gapDashes[j%len(gapDashes)] }
+
+// factorKey is the model-minus-null figure's key when several models
+// meet several nulls: one entry per model (its colour and marker) and one
+// per null (its line pattern), rather than one per pair, whose rows
+// (21 for 7 models and 3 nulls) pushed the panel off the figure.
+// nullIndex gives each null's index j.
+func factorKey(r *Results, models, nulls map[string]bool, nullIndex map[string]int) []legendItem {
+	var items []legendItem
+	for i, m := range r.Sensitivity.ModelNames {
+		if models[m] {
+			ls := lineStyle(modelColor(i), 1, nil)
+			items = append(items, legendItem{m, glyphThumb{gs: markerStyle(i), line: &ls}})
+		}
+	}
+	ns := make([]string, 0, len(nulls))
+	for n := range nulls {
+		ns = append(ns, n)
+	}
+	sort.Slice(ns, func(a, b int) bool { return nullIndex[ns[a]] < nullIndex[ns[b]] })
+	for _, n := range ns {
+		items = append(items, legendItem{"− " + ModelLabel(r, n), lineThumb{lineStyle(ink, 1, gapDash(nullIndex[n]))}})
+	}
+	return items
+}
+
+// nullGapPanelMin is the least height of the model-minus-null panel
+// under its key (our choice: the 90 mm figure less two key rows).
+const nullGapPanelMin = 90*vg.Millimeter - 2*legendRowHeight - 4
+
 // nullZeroGrey draws the line at 0 of the model-minus-null figure.
 var nullZeroGrey = color.Gray{Y: 100}
 
@@ -168,8 +214,14 @@ func nullGapFigures(r *Results) []figure {
 	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale); " +
 			"a line joins the extents of one nested chain (extents in no chain are markers alone). " +
+			"Colour and marker tell the model, the line pattern the null. " +
 			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
 		W: twoColumns, H: 90 * vg.Millimeter}
+	// The figure grows with its key, so that the panel keeps its height.
+	if _, items, err := nullGapPlot(r, f.W-vg.Points(30)); err == nil && items != nil {
+		keyH := vg.Length(len(legendRows(items, f.W)))*legendRowHeight + vg.Points(4)
+		f.H = min(maxHeight, max(f.H, keyH+nullGapPanelMin))
+	}
 	f.draw = func(c draw.Canvas) error {
 		p, items, err := nullGapPlot(r, f.W-vg.Points(30))
 		if err != nil || p == nil {
