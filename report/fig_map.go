@@ -868,7 +868,8 @@ func mapFigure(r *Results) (figure, bool) {
 	if r.Grid.Geographic {
 		keyH = 30 * vg.Millimeter // colour bar, scale bar and north arrow
 	}
-	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, keyH) + vg.Points(4)
+	// The point marks start 6 pt under the band's top (drawMapKey).
+	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight+vg.Points(6), keyH) + vg.Points(4)
 	lay := layoutMapPanels(r, groups, f.W, maxHeight-bottomH-vg.Points(2), (north-south)/((east-west)*aspect))
 	cols, cellW, cellH, legendH := lay.cols, lay.cellW, lay.cellH, lay.legendH
 	all := groups

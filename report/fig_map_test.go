@@ -123,3 +123,37 @@ func TestMapMarksMerged(t *testing.T) {
 		})
 	}
 }
+
+// TestMapOnePanelKeyInside: a family of the base region and the whole
+// raster alone draws one map panel in a one-column figure, whose key band
+// gives the point marks half of 85 mm; the labels of the omitted test
+// points ("test point omitted at the 10th percentile training presence")
+// ran past the figure's right edge. Every text inside the canvas and none
+// overlapping another (checkTexts).
+func TestMapOnePanelKeyInside(t *testing.T) {
+	r := manyExtents(t, 10)
+	var keep []Extent
+	for _, e := range r.Extents {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep = append(keep, e)
+		}
+	}
+	r.Extents = keep
+	if n := len(mapGroups(r)); n != 1 {
+		t.Fatalf("%d panels, want 1", n)
+	}
+	f, svg := checkedMapSVG(t, r, "map of the base region and the whole raster")
+	if f.W != oneColumn {
+		t.Errorf("width %.1f mm, want one column", f.W/vg.Millimeter)
+	}
+	texts, _ := parseSVG(t, svg)
+	var omitted []string
+	for _, tx := range texts {
+		if strings.Contains(tx.s, "omitted") || strings.Contains(tx.s, "training presence") {
+			omitted = append(omitted, tx.s)
+		}
+	}
+	if len(omitted) < 2 {
+		t.Errorf("omission labels %q, want both in the key", omitted)
+	}
+}

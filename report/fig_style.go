@@ -254,8 +254,37 @@ func legendRows(items []legendItem, w vg.Length) [][]legendItem {
 	if len(cur) > 0 {
 		rows = append(rows, cur)
 	}
-	return rows
+	return wrapLegendRows(rows, w)
 }
+
+// wrapLegendRows breaks the label of an item wider than w, alone on its
+// row (the label of a point mark in a one-column map figure's key), into
+// lines that fit, each on a row of its own under the item's marker, so
+// that no key runs off its figure.
+func wrapLegendRows(rows [][]legendItem, w vg.Length) [][]legendItem {
+	var out [][]legendItem
+	for _, row := range rows {
+		if len(row) != 1 || legendItemWidth(row[0]) <= w {
+			out = append(out, row)
+			continue
+		}
+		lines := strings.Split(wrapText(row[0].label, minFontPt, w-legendItemWidth(legendItem{})), "\n")
+		for k, line := range lines {
+			it := legendItem{label: line, thumb: row[0].thumb}
+			if k > 0 {
+				it.thumb = noThumb{}
+			}
+			out = append(out, []legendItem{it})
+		}
+	}
+	return out
+}
+
+// noThumb is the empty thumbnail of a key label's continued line.
+type noThumb struct{}
+
+// Thumbnail implements plot.Thumbnailer.
+func (noThumb) Thumbnail(*draw.Canvas) {}
 
 func legendItemWidth(it legendItem) vg.Length {
 	return vg.Points(22+4+12) + textWidth(it.label, minFontPt)
