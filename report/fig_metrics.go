@@ -419,7 +419,9 @@ func metricsCaption(r *Results) string {
 		"the omission rate does vary with the test records, and its paired differences with their intervals are under Analysis. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
 		"Extents that were not scored are left out."
-	if len(nulls(r)) > 0 {
+	if n := len(nulls(r)); n > 2 {
+		c += " " + nullsInMetricsCaptionMany
+	} else if n > 0 {
 		c += " " + nullsInMetricsCaption
 	}
 	return c

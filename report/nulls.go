@@ -217,6 +217,10 @@ func rocPanelTitle(r *Results, name string) string {
 // drawn for them) and not shifted along the area axis.
 const nullsInMetricsCaption = "Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."
 
+// nullsInMetricsCaptionMany is nullsInMetricsCaption for three nulls or
+// more, whose markers differ (nullLineStyle).
+const nullsInMetricsCaptionMany = "Nulls: grey open markers on dotted lines (circles for the first two, in two greys, then squares, then triangles), at their full-sample scores, without bars and not shifted."
+
 // nullGapBarsCaption reads the model-minus-null figure's bars both ways
 // (a bar wholly below 0 is as much a finding as one above) and says that
 // the pairs are drawn a few percent apart along the area axis.
