@@ -157,3 +157,32 @@ func TestMapOnePanelKeyInside(t *testing.T) {
 		t.Errorf("omission labels %q, want both in the key", omitted)
 	}
 }
+
+// TestDegreeLabelsWrap: a grid across the antimeridian (longitudes 168 to
+// 198, as GDAL writes one east of 180°) was labelled "190°E" and "200°E",
+// meridians that do not exist. Expected labels: the longitude wrapped into
+// (-180, 180], by the definition of east and west longitude.
+func TestDegreeLabelsWrap(t *testing.T) {
+	for _, tc := range []struct {
+		v     float64
+		label string
+		lon   bool
+		want  string
+	}{
+		{190, "190", true, "170°W"},
+		{200, "200", true, "160°W"},
+		{180, "180", true, "180°"},
+		{-180, "\u2212180", true, "180°"},
+		{-190, "\u2212190", true, "170°E"},
+		{187.5, "187.5", true, "172.5°W"},
+		{360, "360", true, "0°"},
+		{-150, "\u2212150", true, "150°W"},
+		{170, "170", true, "170°E"},
+		{0, "0", true, "0°"},
+		{-40, "\u221240", false, "40°S"},
+	} {
+		if got := degreeLabel(tc.v, tc.label, tc.lon); got != tc.want {
+			t.Errorf("degreeLabel(%g, %q, %v) = %q, want %q", tc.v, tc.label, tc.lon, got, tc.want)
+		}
+	}
+}
