@@ -799,7 +799,9 @@ type mapLayout struct {
 // ratio hw: the fewest columns (from 2, or 1 for one panel) whose rows fit
 // with maps at least mapMinH tall, the maps as tall as the ratio, mapMaxH
 // and the room allow. When no column count fits every panel, the widest
-// arrangement shows as many rows as fit with maps mapMinH tall.
+// arrangement shows as many rows as fit with maps mapMinH tall. Maps
+// shorter than mapMinH at two columns for their shape alone (wider than
+// tall) take the column count, from one, that draws them tallest.
 func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float64) mapLayout {
 	try := func(cols int) (mapLayout, vg.Length) {
 		l := mapLayout{cols: cols, cellW: w / vg.Length(cols)}
@@ -815,6 +817,22 @@ func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float
 		return l, dataH
 	}
 	first := min(2, len(groups))
+	if l, _ := try(first); (l.cellW-vg.Points(44))*vg.Length(hw) < mapMinH {
+		// Maps much wider than tall (a long, narrow grid) are short
+		// for their width, and more columns only make them shorter:
+		// take the column count, from one, that draws them tallest
+		// with every row on the page.
+		var best mapLayout
+		bestH := vg.Length(0)
+		for cols := 1; cols <= max(first, mapMaxCols); cols++ {
+			if c, h := try(cols); h > bestH+1e-9 {
+				best, bestH = c, h
+			}
+		}
+		if bestH > 0 {
+			return best
+		}
+	}
 	var l mapLayout
 	for cols := first; cols <= max(first, mapMaxCols); cols++ {
 		var dataH vg.Length

@@ -186,3 +186,37 @@ func TestDegreeLabelsWrap(t *testing.T) {
 		}
 	}
 }
+
+// TestMapLayoutWideGrid: a long, narrow grid (2000 x 40 cells over 30° of
+// longitude and 3° of latitude) drew its three maps in three columns, each
+// map 7 mm tall in a 30 mm panel, the points in a blur: more columns had
+// been tried because the maps were short, which only made them shorter.
+// Maps short for their shape now take the columns that draw them tallest
+// (one here: 175 mm wide); maps of an ordinary shape keep two columns.
+func TestMapLayoutWideGrid(t *testing.T) {
+	r := manyExtents(t, 10)
+	groups := mapGroups(r)
+	if len(groups) != 3 {
+		t.Fatalf("%d groups, want 3", len(groups))
+	}
+	avail := maxHeight - 40*vg.Millimeter
+	for _, tc := range []struct {
+		hw   float64
+		cols int
+	}{{0.13, 1}, {0.05, 1}, {0.9, 2}, {1.2, 2}} {
+		l := layoutMapPanels(r, groups, twoColumns, avail, tc.hw)
+		if l.cols != tc.cols || l.shown != 3 {
+			t.Errorf("height/width %g: %d columns showing %d, want %d showing 3", tc.hw, l.cols, l.shown, tc.cols)
+		}
+		rows := (3 + l.cols - 1) / l.cols
+		if h := vg.Length(rows) * l.cellH; h > avail+1e-6 {
+			t.Errorf("height/width %g: rows %.1f mm, more than the %.1f mm room", tc.hw, h/vg.Millimeter, avail/vg.Millimeter)
+		}
+		// The map's own height at this width, against the panel's.
+		mapH := (l.cellW - vg.Points(44)) * vg.Length(tc.hw)
+		dataH := l.cellH - vg.Points(mapPanelChrome) - l.legendH
+		if mapH < mapMaxH && dataH > mapH+1e-6 {
+			t.Errorf("height/width %g: panel %.1f mm tall for a %.1f mm map", tc.hw, dataH/vg.Millimeter, mapH/vg.Millimeter)
+		}
+	}
+}
