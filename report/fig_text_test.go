@@ -99,3 +99,28 @@ func TestROCLongNamesInside(t *testing.T) {
 		}
 	}
 }
+
+// TestMetricsCaptionNamesUndrawn: a model of two values has no Boyce
+// index on any extent, and the Boyce panel drew the other models alone
+// without a word, as if its line were hidden behind another (seen in a
+// study with a 0/1 model). The caption names what each panel leaves out.
+func TestMetricsCaptionNamesUndrawn(t *testing.T) {
+	r := analyzedSample(t)
+	if got := undrawnSentence(r); got != "" {
+		t.Errorf("sample (every score drawn): %q", got)
+	}
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Boyce = nil
+		}
+	}
+	if !strings.Contains(metricsCaption(r), "Undefined on every extent, so not drawn: Boyce index of broad.") {
+		t.Errorf("caption lacks broad's Boyce index: %s", metricsCaption(r))
+	}
+	for i := range r.Scores {
+		r.Scores[i].Boyce = nil
+	}
+	if got := undrawnSentence(r); !strings.Contains(got, "No panel (undefined for every model on every extent): Boyce index.") || strings.Contains(got, "so not drawn") {
+		t.Errorf("no Boyce index at all: %q", got)
+	}
+}
