@@ -740,7 +740,8 @@ func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length
 		p.X.Tick.Marker = degreeTicks{Lon: true}
 		p.Y.Tick.Marker = degreeTicks{}
 	} else {
-		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
+		u := gridUnitText(m.r.Grid.CRS)
+		p.X.Label.Text, p.Y.Label.Text = "x ("+u+")", "y ("+u+")"
 	}
 	// The training and test points, then the outlines (thin enough to
 	// leave the points visible, and the figure's subject), then the
@@ -1150,4 +1151,35 @@ func (h haloGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 
 func haloOf(gs draw.GlyphStyle) draw.GlyphStyle {
 	return draw.GlyphStyle{Color: colorWhite, Radius: gs.Radius + vg.Points(0.7), Shape: haloGlyph{gs.Shape}}
+}
+
+// gridUnitText names the unit of a projected grid's coordinates on the
+// map axes: the last length unit of its WKT (the projected axes' unit;
+// the ellipsoid's comes first), else the units of its code
+// ("EPSG:3031 units"), where "grid units" told a reader nothing.
+func gridUnitText(crs string) string {
+	if !strings.Contains(crs, "[") {
+		if crs == "" {
+			return "grid units"
+		}
+		return crs + " units"
+	}
+	unit := ""
+	for _, key := range []string{`LENGTHUNIT["`, `UNIT["`} {
+		rest := crs
+		for {
+			i := strings.Index(rest, key)
+			if i < 0 {
+				break
+			}
+			rest = rest[i+len(key):]
+			if j := strings.IndexByte(rest, '"'); j > 0 && !strings.Contains(strings.ToLower(rest[:j]), "degree") {
+				unit = rest[:j]
+			}
+		}
+		if unit != "" {
+			return unit
+		}
+	}
+	return "grid units"
 }
