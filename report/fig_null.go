@@ -72,7 +72,11 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		if len(gaps) == 0 {
 			continue
 		}
-		ls, x0, x1, err := addGapSeries(p, gaps, i, j, div, scale, chainOf)
+		dash := gapDash(j)
+		if gapNulls(r) == 1 {
+			dash = modelDash(i) // one null: the line pattern is the model's
+		}
+		ls, x0, x1, err := addGapSeries(p, gaps, i, j, dash, div, scale, chainOf)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -99,13 +103,13 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	return p, items, nil
 }
 
-// addGapSeries adds to p one model-minus-null series (model i, null j;
-// gaps defined, areas in units of div): a line joining the extents of
+// addGapSeries adds to p one model-minus-null series (model i, null j,
+// line pattern dash; gaps defined, areas in units of div): a line joining the extents of
 // each nested chain (chainOf), the markers scaled by scale, and the 95%
 // intervals as bars, the series shifted sideways a little so that bars
 // stay apart. It returns the series' line style and the smallest and
 // largest x drawn.
-func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
+func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, dash []vg.Length, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
 	// A small horizontal offset per series keeps the bars apart.
@@ -124,7 +128,7 @@ func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.
 		ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
 		lo, hi = math.Min(lo, x), math.Max(hi, x)
 	}
-	ls = lineStyle(modelColor(i), 1, gapDash(j))
+	ls = lineStyle(modelColor(i), 1, dash)
 	// A line joins the extents of one nested chain only (chainLines).
 	for _, line := range chainLines(xys, chains) {
 		l, err := plotter.NewLine(line)
@@ -161,6 +165,22 @@ var gapDashes = [][]vg.Length{
 	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
 	{vg.Points(9), vg.Points(3)},
 	{vg.Points(5), vg.Points(2), vg.Points(1.5), vg.Points(2), vg.Points(1.5), vg.Points(2)},
+}
+
+// gapNulls counts the nulls with an AUC difference in the
+// model-minus-null figure: with one, each model keeps its own line
+// pattern (as in the other figures); with more, the pattern tells the
+// null.
+func gapNulls(r *Results) int {
+	seen := map[string]bool{}
+	if r.Sensitivity != nil {
+		for _, an := range r.Sensitivity.AboveNull {
+			if an.Metric == "auc" {
+				seen[an.Null] = true
+			}
+		}
+	}
+	return len(seen)
 }
 
 // gapDash is the line pattern of the j-th null in the model-minus-null
@@ -214,7 +234,7 @@ func nullGapFigures(r *Results) []figure {
 	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale); " +
 			"a line joins the extents of one nested chain (extents in no chain are markers alone). " +
-			"Colour and marker tell the model, the line pattern the null. " +
+			gapStyleSentence(gapNulls(r)) +
 			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
 		W: twoColumns, H: 90 * vg.Millimeter}
 	// The figure grows with its key, so that the panel keeps its height.
@@ -235,4 +255,13 @@ func nullGapFigures(r *Results) []figure {
 		return nil
 	}
 	return []figure{f}
+}
+
+// gapStyleSentence says how the model-minus-null figure tells its lines
+// apart (addGapSeries's line patterns).
+func gapStyleSentence(nulls int) string {
+	if nulls > 1 {
+		return "Colour and marker tell the model, the line pattern the null. "
+	}
+	return "Colour, marker and line pattern tell the model. "
 }

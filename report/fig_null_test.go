@@ -105,6 +105,17 @@ func TestNullGapPairsTellApart(t *testing.T) {
 			seen[key] = pair
 		}
 	}
+	// With one null each model keeps its own pattern (modelDash, as in
+	// the other figures), and the caption says which reading applies.
+	for _, tc := range []struct {
+		nulls int
+		want  string
+	}{{1, "Colour, marker and line pattern tell the model."}, {2, "Colour and marker tell the model, the line pattern the null."}} {
+		f := nullGapFigures(gapResults(2, tc.nulls))
+		if len(f) != 1 || !strings.Contains(f[0].Caption, tc.want) {
+			t.Errorf("%d nulls: caption lacks %q", tc.nulls, tc.want)
+		}
+	}
 	// Patterns that differ only by a fraction of a point read as one.
 	for a := range 6 {
 		for b := range a {
