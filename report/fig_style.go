@@ -264,11 +264,15 @@ func legendRows(items []legendItem, w vg.Length) [][]legendItem {
 func wrapLegendRows(rows [][]legendItem, w vg.Length) [][]legendItem {
 	var out [][]legendItem
 	for _, row := range rows {
-		if len(row) != 1 || legendItemWidth(row[0]) <= w {
+		// Drawn, an item reaches 4 + 26 pt and its label's width past
+		// the row's start (drawLegendRows); the 12 pt after it that
+		// legendItemWidth counts only parts items on one row.
+		room := w - vg.Points(4+26)
+		if len(row) != 1 || textWidth(row[0].label, minFontPt) <= room {
 			out = append(out, row)
 			continue
 		}
-		lines := strings.Split(wrapText(row[0].label, minFontPt, w-legendItemWidth(legendItem{})), "\n")
+		lines := strings.Split(wrapText(row[0].label, minFontPt, room), "\n")
 		for k, line := range lines {
 			it := legendItem{label: line, thumb: row[0].thumb}
 			if k > 0 {
