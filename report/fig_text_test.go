@@ -9,6 +9,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/recorder"
+
+	"areasweep/extent/vocab"
 )
 
 // TestWrapTextBreaksLongNames: a model's name has no spaces, and a name
@@ -122,5 +124,41 @@ func TestMetricsCaptionNamesUndrawn(t *testing.T) {
 	}
 	if got := undrawnSentence(r); !strings.Contains(got, "No panel (undefined for every model on every extent): Boyce index.") || strings.Contains(got, "so not drawn") {
 		t.Errorf("no Boyce index at all: %q", got)
+	}
+}
+
+// TestROCNoBarWithoutRamp: a family of the base region and the whole
+// raster alone draws both curves in their own styles (magenta, dashed
+// red), yet the ROC figure drew a colour bar of extent area, ticked at
+// their areas, that keyed no curve, and the caption said the curves were
+// coloured by area. Such a figure has no bar and says what its two curves
+// are.
+func TestROCNoBarWithoutRamp(t *testing.T) {
+	r := manyExtents(t, 10)
+	var keep []Extent
+	for _, e := range r.Extents {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep = append(keep, e)
+		}
+	}
+	r.Extents = keep
+	analyzedSampleWith(t, r)
+	f := rocFigure(r)
+	rec := &recorder.Canvas{}
+	if err := f.draw(draw.NewCanvas(rec, f.W, f.H)); err != nil {
+		t.Fatal(err)
+	}
+	for _, a := range rec.Actions {
+		if fs, ok := a.(*recorder.FillString); ok && strings.HasPrefix(fs.String, "extent area") {
+			t.Errorf("colour bar %q drawn with no curve on the area ramp", fs.String)
+		}
+	}
+	if strings.Contains(f.Caption, "colour bar") || !strings.Contains(f.Caption, "one curve per extent: the base region (solid magenta) and the whole raster (dashed red)") {
+		t.Errorf("caption: %s", f.Caption)
+	}
+	// With the other extents back, the bar and its sentence return.
+	r = analyzedSampleWith(t, manyExtents(t, 10))
+	if f := rocFigure(r); !strings.Contains(f.Caption, "colour bar") {
+		t.Errorf("caption of a full family lacks the colour bar: %s", f.Caption)
 	}
 }
