@@ -529,7 +529,7 @@ type mapScene struct {
 // newMapScene decodes the preview and traces the outlines of the panels
 // of groups; marks are the point layers. The scene is read only after,
 // so that one serves every format of the figure, drawn at the same time.
-func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, error) {
+func newMapScene(r *Results, marks mapMarks, groups []mapGroup, cellW vg.Length) (*mapScene, error) {
 	pv := r.Preview
 	vals, masks, err := decodePreview(pv)
 	if err != nil {
@@ -546,7 +546,7 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, erro
 		img.Set(i%pv.Width, i/pv.Width, ramp[v])
 		pal.SetColorIndex(i%pv.Width, i/pv.Width, v)
 	}
-	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
+	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
 	for _, g := range groups {
 		os, key := m.traceOutlines(g)
@@ -554,6 +554,33 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, erro
 		m.keys = append(m.keys, key)
 	}
 	return m, nil
+}
+
+// blockScale returns img with each pixel made a k x k block, k the
+// whole number of pixels a preview cell spans on a map cellW wide at
+// pngDPI (img itself when k < 2). The PNG canvas scales images bilinearly
+// (as it must for rotated text), which drew a coarse grid (20 x 15 cells)
+// as a smooth blur where the SVG and PDF show its cells; scaled from
+// blocks, only each cell's edge pixel is blended.
+func blockScale(img *image.RGBA, cellW vg.Length) *image.RGBA {
+	w, h := img.Rect.Dx(), img.Rect.Dy()
+	k := int(float64(cellW/vg.Inch) * pngDPI / float64(max(w, 1)))
+	k = min(k, 4096/max(w, h, 1)) // at most 4096 pixels a side
+	if k < 2 {
+		return img
+	}
+	out := image.NewRGBA(image.Rect(0, 0, w*k, h*k))
+	for y := range h * k {
+		src := img.Pix[(y/k)*img.Stride:]
+		dst := out.Pix[y*out.Stride:]
+		for x := range w {
+			px := src[4*x : 4*x+4]
+			for j := range k {
+				copy(dst[4*(x*k+j):], px)
+			}
+		}
+	}
+	return out
 }
 
 // mapAspect returns the maps' aspect, km per x unit over km per y unit:
@@ -914,7 +941,7 @@ func mapFigure(r *Results) (figure, bool) {
 	f.Caption = mapCaption(r, model, groups, all, marks, left)
 	// One scene for the three formats (they are drawn at the same time):
 	// the preview decoded and every extent's outline traced once.
-	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups) })
+	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups, cellW) })
 	f.draw = func(dc draw.Canvas) error {
 		m, err := scene()
 		if err != nil {

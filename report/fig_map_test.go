@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"image"
+	"image/color"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -237,5 +239,35 @@ func TestGridUnitText(t *testing.T) {
 		if got := gridUnitText(tc.crs); got != tc.want {
 			t.Errorf("gridUnitText(%.60q...) = %q, want %q", tc.crs, got, tc.want)
 		}
+	}
+}
+
+// TestMapBackgroundCells: the PNG canvas scales images bilinearly, so a
+// coarse grid's suitability (20 x 15 cells) was drawn as a smooth blur in
+// extent_maps.png while the SVG draws its cells (image-rendering:
+// pixelated). Drawn from blockScale's blocks, a pixel 40% across a
+// two-cell image is the first cell's colour, as in the SVG; scaled
+// bilinearly from the two pixels it was a blend (70% of the first).
+func TestMapBackgroundCells(t *testing.T) {
+	src := image.NewRGBA(image.Rect(0, 0, 2, 1))
+	src.Set(0, 0, color.RGBA{0, 0, 0, 255})
+	src.Set(1, 0, color.RGBA{255, 255, 255, 255})
+	w, h := 100*vg.Millimeter/4, 10*vg.Millimeter
+	c := newPNGCanvas(w, h)
+	c.DrawImage(vg.Rectangle{Max: vg.Point{X: w, Y: h}}, blockScale(src, w))
+	b := c.img.Bounds()
+	for _, frac := range []float64{0.1, 0.4, 0.6, 0.9} {
+		x := b.Min.X + int(frac*float64(b.Dx()))
+		got := c.img.RGBAAt(x, b.Min.Y+b.Dy()/2)
+		want := uint8(0)
+		if frac > 0.5 {
+			want = 255
+		}
+		if got.R != want {
+			t.Errorf("pixel %.0f%% across: red %d, want %d (a cell's own colour)", 100*frac, got.R, want)
+		}
+	}
+	if one := blockScale(src, 0); one != src {
+		t.Error("a map too small for blocks got a copy")
 	}
 }
