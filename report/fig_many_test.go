@@ -687,3 +687,25 @@ func checkedMapSVG(t *testing.T, r *Results, what string) (figure, []byte) {
 	checkTexts(t, what, svg)
 	return f, svg
 }
+
+// TestNullsTellApart: two nulls of the user's and the distance-only null
+// (three nulls) drew the first and third in the same grey, dotted, with
+// the same open circles, so a reader could not tell which line was which
+// (seen in the metrics figure of a study with two --null rasters). Every
+// null of a run with up to six differs from every other in grey or marker.
+func TestNullsTellApart(t *testing.T) {
+	seen := map[string]int{}
+	for k := range 6 {
+		ls, gs := nullLineStyle(k)
+		key := fmt.Sprintf("%s %T", svgColor(ls.Color), gs.Shape)
+		if j, ok := seen[key]; ok {
+			t.Errorf("null %d drawn as null %d (%s)", k, j, key)
+		}
+		seen[key] = k
+		switch gs.Shape.(type) {
+		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph:
+		default:
+			t.Errorf("null %d's marker %T is not hollow", k, gs.Shape)
+		}
+	}
+}

@@ -529,7 +529,7 @@ type mapScene struct {
 // newMapScene decodes the preview and traces the outlines of the panels
 // of groups; marks are the point layers. The scene is read only after,
 // so that one serves every format of the figure, drawn at the same time.
-func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, error) {
+func newMapScene(r *Results, marks mapMarks, groups []mapGroup, cellW vg.Length) (*mapScene, error) {
 	pv := r.Preview
 	vals, masks, err := decodePreview(pv)
 	if err != nil {
@@ -546,7 +546,7 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, erro
 		img.Set(i%pv.Width, i/pv.Width, ramp[v])
 		pal.SetColorIndex(i%pv.Width, i/pv.Width, v)
 	}
-	m := &mapScene{r: r, img: img, pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
+	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
 	for _, g := range groups {
 		os, key := m.traceOutlines(g)
@@ -554,6 +554,33 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup) (*mapScene, erro
 		m.keys = append(m.keys, key)
 	}
 	return m, nil
+}
+
+// blockScale returns img with each pixel made a k x k block, k the
+// whole number of pixels a preview cell spans on a map cellW wide at
+// pngDPI (img itself when k < 2). The PNG canvas scales images bilinearly
+// (as it must for rotated text), which drew a coarse grid (20 x 15 cells)
+// as a smooth blur where the SVG and PDF show its cells; scaled from
+// blocks, only each cell's edge pixel is blended.
+func blockScale(img *image.RGBA, cellW vg.Length) *image.RGBA {
+	w, h := img.Rect.Dx(), img.Rect.Dy()
+	k := int(float64(cellW/vg.Inch) * pngDPI / float64(max(w, 1)))
+	k = min(k, 4096/max(w, h, 1)) // at most 4096 pixels a side
+	if k < 2 {
+		return img
+	}
+	out := image.NewRGBA(image.Rect(0, 0, w*k, h*k))
+	for y := range h * k {
+		src := img.Pix[(y/k)*img.Stride:]
+		dst := out.Pix[y*out.Stride:]
+		for x := range w {
+			px := src[4*x : 4*x+4]
+			for j := range k {
+				copy(dst[4*(x*k+j):], px)
+			}
+		}
+	}
+	return out
 }
 
 // mapAspect returns the maps' aspect, km per x unit over km per y unit:
@@ -740,7 +767,8 @@ func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length
 		p.X.Tick.Marker = degreeTicks{Lon: true}
 		p.Y.Tick.Marker = degreeTicks{}
 	} else {
-		p.X.Label.Text, p.Y.Label.Text = "x (grid units)", "y (grid units)"
+		u := gridUnitText(m.r.Grid.CRS)
+		p.X.Label.Text, p.Y.Label.Text = "x ("+u+")", "y ("+u+")"
 	}
 	// The training and test points, then the outlines (thin enough to
 	// leave the points visible, and the figure's subject), then the
@@ -799,7 +827,9 @@ type mapLayout struct {
 // ratio hw: the fewest columns (from 2, or 1 for one panel) whose rows fit
 // with maps at least mapMinH tall, the maps as tall as the ratio, mapMaxH
 // and the room allow. When no column count fits every panel, the widest
-// arrangement shows as many rows as fit with maps mapMinH tall.
+// arrangement shows as many rows as fit with maps mapMinH tall. Maps
+// shorter than mapMinH at two columns for their shape alone (wider than
+// tall) take the column count, from one, that draws them tallest.
 func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float64) mapLayout {
 	try := func(cols int) (mapLayout, vg.Length) {
 		l := mapLayout{cols: cols, cellW: w / vg.Length(cols)}
@@ -815,6 +845,22 @@ func layoutMapPanels(r *Results, groups []mapGroup, w, avail vg.Length, hw float
 		return l, dataH
 	}
 	first := min(2, len(groups))
+	if l, _ := try(first); (l.cellW-vg.Points(44))*vg.Length(hw) < mapMinH {
+		// Maps much wider than tall (a long, narrow grid) are short
+		// for their width, and more columns only make them shorter:
+		// take the column count, from one, that draws them tallest
+		// with every row on the page.
+		var best mapLayout
+		bestH := vg.Length(0)
+		for cols := 1; cols <= max(first, mapMaxCols); cols++ {
+			if c, h := try(cols); h > bestH+1e-9 {
+				best, bestH = c, h
+			}
+		}
+		if bestH > 0 {
+			return best
+		}
+	}
 	var l mapLayout
 	for cols := first; cols <= max(first, mapMaxCols); cols++ {
 		var dataH vg.Length
@@ -868,7 +914,8 @@ func mapFigure(r *Results) (figure, bool) {
 	if r.Grid.Geographic {
 		keyH = 30 * vg.Millimeter // colour bar, scale bar and north arrow
 	}
-	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight, keyH) + vg.Points(4)
+	// The point marks start 6 pt under the band's top (drawMapKey).
+	bottomH := max(vg.Length(len(sharedRows))*legendRowHeight+vg.Points(6), keyH) + vg.Points(4)
 	lay := layoutMapPanels(r, groups, f.W, maxHeight-bottomH-vg.Points(2), (north-south)/((east-west)*aspect))
 	cols, cellW, cellH, legendH := lay.cols, lay.cellW, lay.cellH, lay.legendH
 	all := groups
@@ -894,7 +941,7 @@ func mapFigure(r *Results) (figure, bool) {
 	f.Caption = mapCaption(r, model, groups, all, marks, left)
 	// One scene for the three formats (they are drawn at the same time):
 	// the preview decoded and every extent's outline traced once.
-	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups) })
+	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups, cellW) })
 	f.draw = func(dc draw.Canvas) error {
 		m, err := scene()
 		if err != nil {
@@ -1131,4 +1178,35 @@ func (h haloGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 
 func haloOf(gs draw.GlyphStyle) draw.GlyphStyle {
 	return draw.GlyphStyle{Color: colorWhite, Radius: gs.Radius + vg.Points(0.7), Shape: haloGlyph{gs.Shape}}
+}
+
+// gridUnitText names the unit of a projected grid's coordinates on the
+// map axes: the last length unit of its WKT (the projected axes' unit;
+// the ellipsoid's comes first), else the units of its code
+// ("EPSG:3031 units"), where "grid units" told a reader nothing.
+func gridUnitText(crs string) string {
+	if !strings.Contains(crs, "[") {
+		if crs == "" {
+			return "grid units"
+		}
+		return crs + " units"
+	}
+	unit := ""
+	for _, key := range []string{`LENGTHUNIT["`, `UNIT["`} {
+		rest := crs
+		for {
+			i := strings.Index(rest, key)
+			if i < 0 {
+				break
+			}
+			rest = rest[i+len(key):]
+			if j := strings.IndexByte(rest, '"'); j > 0 && !strings.Contains(strings.ToLower(rest[:j]), "degree") {
+				unit = rest[:j]
+			}
+		}
+		if unit != "" {
+			return unit
+		}
+	}
+	return "grid units"
 }

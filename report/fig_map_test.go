@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"image"
+	"image/color"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -121,5 +123,151 @@ func TestMapMarksMerged(t *testing.T) {
 				t.Fatalf("%d points: %d marks, key %q, caption merged %v", n, len(tr.xys), tr.label, merged)
 			}
 		})
+	}
+}
+
+// TestMapOnePanelKeyInside: a family of the base region and the whole
+// raster alone draws one map panel in a one-column figure, whose key band
+// gives the point marks half of 85 mm; the labels of the omitted test
+// points ("test point omitted at the 10th percentile training presence")
+// ran past the figure's right edge. Every text inside the canvas and none
+// overlapping another (checkTexts).
+func TestMapOnePanelKeyInside(t *testing.T) {
+	r := manyExtents(t, 10)
+	var keep []Extent
+	for _, e := range r.Extents {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep = append(keep, e)
+		}
+	}
+	r.Extents = keep
+	if n := len(mapGroups(r)); n != 1 {
+		t.Fatalf("%d panels, want 1", n)
+	}
+	f, svg := checkedMapSVG(t, r, "map of the base region and the whole raster")
+	if f.W != oneColumn {
+		t.Errorf("width %.1f mm, want one column", f.W/vg.Millimeter)
+	}
+	texts, _ := parseSVG(t, svg)
+	var omitted []string
+	for _, tx := range texts {
+		if strings.Contains(tx.s, "omitted") || strings.Contains(tx.s, "training presence") {
+			omitted = append(omitted, tx.s)
+		}
+	}
+	if len(omitted) < 2 {
+		t.Errorf("omission labels %q, want both in the key", omitted)
+	}
+}
+
+// TestDegreeLabelsWrap: a grid across the antimeridian (longitudes 168 to
+// 198, as GDAL writes one east of 180°) was labelled "190°E" and "200°E",
+// meridians that do not exist. Expected labels: the longitude wrapped into
+// (-180, 180], by the definition of east and west longitude.
+func TestDegreeLabelsWrap(t *testing.T) {
+	for _, tc := range []struct {
+		v     float64
+		label string
+		lon   bool
+		want  string
+	}{
+		{190, "190", true, "170°W"},
+		{200, "200", true, "160°W"},
+		{180, "180", true, "180°"},
+		{-180, "\u2212180", true, "180°"},
+		{-190, "\u2212190", true, "170°E"},
+		{187.5, "187.5", true, "172.5°W"},
+		{360, "360", true, "0°"},
+		{-150, "\u2212150", true, "150°W"},
+		{170, "170", true, "170°E"},
+		{0, "0", true, "0°"},
+		{-40, "\u221240", false, "40°S"},
+	} {
+		if got := degreeLabel(tc.v, tc.label, tc.lon); got != tc.want {
+			t.Errorf("degreeLabel(%g, %q, %v) = %q, want %q", tc.v, tc.label, tc.lon, got, tc.want)
+		}
+	}
+}
+
+// TestMapLayoutWideGrid: a long, narrow grid (2000 x 40 cells over 30° of
+// longitude and 3° of latitude) drew its three maps in three columns, each
+// map 7 mm tall in a 30 mm panel, the points in a blur: more columns had
+// been tried because the maps were short, which only made them shorter.
+// Maps short for their shape now take the columns that draw them tallest
+// (one here: 175 mm wide); maps of an ordinary shape keep two columns.
+func TestMapLayoutWideGrid(t *testing.T) {
+	r := manyExtents(t, 10)
+	groups := mapGroups(r)
+	if len(groups) != 3 {
+		t.Fatalf("%d groups, want 3", len(groups))
+	}
+	avail := maxHeight - 40*vg.Millimeter
+	for _, tc := range []struct {
+		hw   float64
+		cols int
+	}{{0.13, 1}, {0.05, 1}, {0.9, 2}, {1.2, 2}} {
+		l := layoutMapPanels(r, groups, twoColumns, avail, tc.hw)
+		if l.cols != tc.cols || l.shown != 3 {
+			t.Errorf("height/width %g: %d columns showing %d, want %d showing 3", tc.hw, l.cols, l.shown, tc.cols)
+		}
+		rows := (3 + l.cols - 1) / l.cols
+		if h := vg.Length(rows) * l.cellH; h > avail+1e-6 {
+			t.Errorf("height/width %g: rows %.1f mm, more than the %.1f mm room", tc.hw, h/vg.Millimeter, avail/vg.Millimeter)
+		}
+		// The map's own height at this width, against the panel's.
+		mapH := (l.cellW - vg.Points(44)) * vg.Length(tc.hw)
+		dataH := l.cellH - vg.Points(mapPanelChrome) - l.legendH
+		if mapH < mapMaxH && dataH > mapH+1e-6 {
+			t.Errorf("height/width %g: panel %.1f mm tall for a %.1f mm map", tc.hw, dataH/vg.Millimeter, mapH/vg.Millimeter)
+		}
+	}
+}
+
+// TestGridUnitText: a map of a projected grid titled its axes "x (grid
+// units)", which tells a reader nothing. The WKT strings below are GDAL's
+// (osr ImportFromEPSG, ExportToWkt as WKT2_2018 and WKT1_GDAL) and the
+// expected unit is the one GDAL names for the projected axes.
+func TestGridUnitText(t *testing.T) {
+	for _, tc := range []struct{ crs, want string }{
+		{"EPSG:3031", "EPSG:3031 units"},
+		{"", "grid units"},
+		{`PROJCRS["WGS 84 / Antarctic Polar Stereographic",BASEGEOGCRS["WGS 84",ENSEMBLE["World Geodetic System 1984 ensemble",MEMBER["World Geodetic System 1984 (Transit)"],MEMBER["World Geodetic System 1984 (G730)"],MEMBER["World Geodetic System 1984 (G873)"],MEMBER["World Geodetic System 1984 (G1150)"],MEMBER["World Geodetic System 1984 (G1674)"],MEMBER["World Geodetic System 1984 (G1762)"],MEMBER["World Geodetic System 1984 (G2139)"],ELLIPSOID["WGS 84",6378137,298.257223563,LENGTHUNIT["metre",1]],ENSEMBLEACCURACY[2.0]],PRIMEM["Greenwich",0,ANGLEUNIT["degree",0.0174532925199433]],ID["EPSG",4326]],CONVERSION["Antarctic Polar Stereographic",METHOD["Polar Stereographic (variant B)",ID["EPSG",9829]],PARAMETER["Latitude of standard parallel",-71,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8832]],PARAMETER["Longitude of origin",0,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8833]],PARAMETER["False easting",0,LENGTHUNIT["metre",1],ID["EPSG",8806]],PARAMETER["False northing",0,LENGTHUNIT["metre",1],ID["EPSG",8807]]],CS[Cartesian,2],AXIS["(E)",north,MERIDIAN[90,ANGLEUNIT["degree",0.0174532925199433]],ORDER[1],LENGTHUNIT["metre",1]],AXIS["(N)",north,MERIDIAN[0,ANGLEUNIT["degree",0.0174532925199433]],ORDER[2],LENGTHUNIT["metre",1]],USAGE[SCOPE["Antarctic Digital Database and small scale topographic mapping."],AREA["Antarctica."],BBOX[-90,-180,-60,180]],ID["EPSG",3031]]`, "metre"},
+		{`PROJCS["WGS 84 / Antarctic Polar Stereographic",GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563,AUTHORITY["EPSG","7030"]],AUTHORITY["EPSG","6326"]],PRIMEM["Greenwich",0,AUTHORITY["EPSG","8901"]],UNIT["degree",0.0174532925199433,AUTHORITY["EPSG","9122"]],AUTHORITY["EPSG","4326"]],PROJECTION["Polar_Stereographic"],PARAMETER["latitude_of_origin",-71],PARAMETER["central_meridian",0],PARAMETER["false_easting",0],PARAMETER["false_northing",0],UNIT["metre",1,AUTHORITY["EPSG","9001"]],AXIS["Easting",NORTH],AXIS["Northing",NORTH],AUTHORITY["EPSG","3031"]]`, "metre"},
+		{`PROJCRS["NAD83 / California zone 3 (ftUS)",BASEGEOGCRS["NAD83",DATUM["North American Datum 1983",ELLIPSOID["GRS 1980",6378137,298.257222101,LENGTHUNIT["metre",1]]],PRIMEM["Greenwich",0,ANGLEUNIT["degree",0.0174532925199433]],ID["EPSG",4269]],CONVERSION["SPCS83 California zone 3 (US Survey feet)",METHOD["Lambert Conic Conformal (2SP)",ID["EPSG",9802]],PARAMETER["Latitude of false origin",36.5,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8821]],PARAMETER["Longitude of false origin",-120.5,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8822]],PARAMETER["Latitude of 1st standard parallel",38.4333333333333,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8823]],PARAMETER["Latitude of 2nd standard parallel",37.0666666666667,ANGLEUNIT["degree",0.0174532925199433],ID["EPSG",8824]],PARAMETER["Easting at false origin",6561666.667,LENGTHUNIT["US survey foot",0.304800609601219],ID["EPSG",8826]],PARAMETER["Northing at false origin",1640416.667,LENGTHUNIT["US survey foot",0.304800609601219],ID["EPSG",8827]]],CS[Cartesian,2],AXIS["easting (X)",east,ORDER[1],LENGTHUNIT["US survey foot",0.304800609601219]],AXIS["northing (Y)",north,ORDER[2],LENGTHUNIT["US survey foot",0.304800609601219]],USAGE[SCOPE["Engineering survey, topographic mapping."],AREA["United States (USA) - California - counties Alameda; Calaveras; Contra Costa; Madera; Marin; Mariposa; Merced; Mono; San Francisco; San Joaquin; San Mateo; Santa Clara; Santa Cruz; Stanislaus; Tuolumne."],BBOX[36.73,-123.02,38.71,-117.83]],ID["EPSG",2227]]`, "US survey foot"},
+		{`PROJCS["NAD83 / California zone 3 (ftUS)",GEOGCS["NAD83",DATUM["North_American_Datum_1983",SPHEROID["GRS 1980",6378137,298.257222101,AUTHORITY["EPSG","7019"]],AUTHORITY["EPSG","6269"]],PRIMEM["Greenwich",0,AUTHORITY["EPSG","8901"]],UNIT["degree",0.0174532925199433,AUTHORITY["EPSG","9122"]],AUTHORITY["EPSG","4269"]],PROJECTION["Lambert_Conformal_Conic_2SP"],PARAMETER["latitude_of_origin",36.5],PARAMETER["central_meridian",-120.5],PARAMETER["standard_parallel_1",38.4333333333333],PARAMETER["standard_parallel_2",37.0666666666667],PARAMETER["false_easting",6561666.667],PARAMETER["false_northing",1640416.667],UNIT["US survey foot",0.304800609601219,AUTHORITY["EPSG","9003"]],AXIS["Easting",EAST],AXIS["Northing",NORTH],AUTHORITY["EPSG","2227"]]`, "US survey foot"},
+	} {
+		if got := gridUnitText(tc.crs); got != tc.want {
+			t.Errorf("gridUnitText(%.60q...) = %q, want %q", tc.crs, got, tc.want)
+		}
+	}
+}
+
+// TestMapBackgroundCells: the PNG canvas scales images bilinearly, so a
+// coarse grid's suitability (20 x 15 cells) was drawn as a smooth blur in
+// extent_maps.png while the SVG draws its cells (image-rendering:
+// pixelated). Drawn from blockScale's blocks, a pixel 40% across a
+// two-cell image is the first cell's colour, as in the SVG; scaled
+// bilinearly from the two pixels it was a blend (70% of the first).
+func TestMapBackgroundCells(t *testing.T) {
+	src := image.NewRGBA(image.Rect(0, 0, 2, 1))
+	src.Set(0, 0, color.RGBA{0, 0, 0, 255})
+	src.Set(1, 0, color.RGBA{255, 255, 255, 255})
+	w, h := 100*vg.Millimeter/4, 10*vg.Millimeter
+	c := newPNGCanvas(w, h)
+	c.DrawImage(vg.Rectangle{Max: vg.Point{X: w, Y: h}}, blockScale(src, w))
+	b := c.img.Bounds()
+	for _, frac := range []float64{0.1, 0.4, 0.6, 0.9} {
+		x := b.Min.X + int(frac*float64(b.Dx()))
+		got := c.img.RGBAAt(x, b.Min.Y+b.Dy()/2)
+		want := uint8(0)
+		if frac > 0.5 {
+			want = 255
+		}
+		if got.R != want {
+			t.Errorf("pixel %.0f%% across: red %d, want %d (a cell's own colour)", 100*frac, got.R, want)
+		}
+	}
+	if one := blockScale(src, 0); one != src {
+		t.Error("a map too small for blocks got a copy")
 	}
 }

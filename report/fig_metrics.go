@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -380,6 +381,52 @@ func fewTestPoints(r *Results) bool {
 	return false
 }
 
+// undrawnSentence names, per metric, the models and nulls with no marker
+// in its panel (the score undefined on every extent scored: a model of two
+// values has no Boyce index), and the metrics with no panel at all, so
+// that a line missing from a panel is not read as hidden behind another.
+func undrawnSentence(r *Results) string {
+	s := r.Sensitivity
+	if s == nil {
+		return ""
+	}
+	panels, _ := metricPanels(r)
+	drawn := map[string]metricPanel{}
+	for _, pn := range panels {
+		drawn[pn.m.Key] = pn
+	}
+	var parts, none []string
+	for _, m := range s.Metrics {
+		pn, ok := drawn[m.Key]
+		if !ok {
+			none = append(none, m.Label)
+			continue
+		}
+		var names []string
+		for i, model := range s.ModelNames {
+			if len(pn.pts[i]) == 0 {
+				names = append(names, model)
+			}
+		}
+		for j, nm := range nulls(r) {
+			if len(pn.nulls[j]) == 0 {
+				names = append(names, ModelLabel(r, nm.Name))
+			}
+		}
+		if len(names) > 0 {
+			parts = append(parts, m.Label+" of "+joinList(names))
+		}
+	}
+	out := ""
+	if len(parts) > 0 {
+		out += " Undefined on every extent, so not drawn: " + strings.Join(parts, "; ") + "."
+	}
+	if len(none) > 0 {
+		out += " No panel (undefined for every model on every extent): " + joinList(none) + "."
+	}
+	return out
+}
+
 func metricsCaption(r *Results) string {
 	st := r.Settings
 	c := "Each score against the area of the extent (log scale), one colour, marker and dash per model; " +
@@ -419,7 +466,10 @@ func metricsCaption(r *Results) string {
 		"the omission rate does vary with the test records, and its paired differences with their intervals are under Analysis. " +
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
 		"Extents that were not scored are left out."
-	if len(nulls(r)) > 0 {
+	c += undrawnSentence(r)
+	if n := len(nulls(r)); n > 2 {
+		c += " " + nullsInMetricsCaptionMany
+	} else if n > 0 {
 		c += " " + nullsInMetricsCaption
 	}
 	return c

@@ -51,6 +51,7 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	scale := markerScale(most)
 	lo, hi := math.Inf(1), math.Inf(-1)
 	nulls := map[string]int{}
+	pairModels, pairNulls := map[string]bool{}, map[string]bool{}
 	drawn := 0
 	for _, an := range r.Sensitivity.AboveNull {
 		if an.Metric != "auc" {
@@ -71,7 +72,11 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		if len(gaps) == 0 {
 			continue
 		}
-		ls, x0, x1, err := addGapSeries(p, gaps, i, j, div, scale, chainOf)
+		dash := gapDash(j)
+		if gapNulls(r) == 1 {
+			dash = modelDash(i) // one null: the line pattern is the model's
+		}
+		ls, x0, x1, err := addGapSeries(p, gaps, i, j, dash, div, scale, chainOf)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -79,9 +84,13 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		gs := markerStyle(i)
 		items = append(items, legendItem{an.Model + " − " + ModelLabel(r, an.Null), glyphThumb{gs: gs, line: &ls}})
 		drawn++
+		pairModels[an.Model], pairNulls[an.Null] = true, true
 	}
 	if drawn == 0 {
 		return nil, nil, nil
+	}
+	if len(pairModels) > 1 && len(pairNulls) > 1 {
+		items = factorKey(r, pairModels, pairNulls, nulls)
 	}
 	zero, err := plotter.NewLine(plotter.XYs{{X: lo / 1.25, Y: 0}, {X: hi * 1.25, Y: 0}})
 	if err != nil {
@@ -94,13 +103,13 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	return p, items, nil
 }
 
-// addGapSeries adds to p one model-minus-null series (model i, null j;
-// gaps defined, areas in units of div): a line joining the extents of
+// addGapSeries adds to p one model-minus-null series (model i, null j,
+// line pattern dash; gaps defined, areas in units of div): a line joining the extents of
 // each nested chain (chainOf), the markers scaled by scale, and the 95%
 // intervals as bars, the series shifted sideways a little so that bars
 // stay apart. It returns the series' line style and the smallest and
 // largest x drawn.
-func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
+func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, dash []vg.Length, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
 	// A small horizontal offset per series keeps the bars apart.
@@ -119,11 +128,7 @@ func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.
 		ep.YErrors = append(ep.YErrors, struct{ Low, High float64 }{Low: math.Max(0, g.Diff-g.Low), High: math.Max(0, g.High-g.Diff)})
 		lo, hi = math.Min(lo, x), math.Max(hi, x)
 	}
-	dashes := modelDash(i)
-	if j > 0 {
-		dashes = []vg.Length{vg.Points(1.5), vg.Points(2)}
-	}
-	ls = lineStyle(modelColor(i), 1, dashes)
+	ls = lineStyle(modelColor(i), 1, dash)
 	// A line joins the extents of one nested chain only (chainLines).
 	for _, line := range chainLines(xys, chains) {
 		l, err := plotter.NewLine(line)
@@ -149,6 +154,67 @@ func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, div float64, scale vg.
 	return ls, lo, hi, nil
 }
 
+// gapDashes tell the nulls apart in the model-minus-null figure (colour
+// and marker tell the models): each null's pattern differs from every
+// other's, whatever the model, so that two pairs of one model never share
+// colour, marker and line.
+var gapDashes = [][]vg.Length{
+	nil,
+	{vg.Points(1.5), vg.Points(2)},
+	{vg.Points(5), vg.Points(2.5)},
+	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(9), vg.Points(3)},
+	{vg.Points(5), vg.Points(2), vg.Points(1.5), vg.Points(2), vg.Points(1.5), vg.Points(2)},
+}
+
+// gapNulls counts the nulls with an AUC difference in the
+// model-minus-null figure: with one, each model keeps its own line
+// pattern (as in the other figures); with more, the pattern tells the
+// null.
+func gapNulls(r *Results) int {
+	seen := map[string]bool{}
+	if r.Sensitivity != nil {
+		for _, an := range r.Sensitivity.AboveNull {
+			if an.Metric == "auc" {
+				seen[an.Null] = true
+			}
+		}
+	}
+	return len(seen)
+}
+
+// gapDash is the line pattern of the j-th null in the model-minus-null
+// figure.
+func gapDash(j int) []vg.Length { return gapDashes[j%len(gapDashes)] }
+
+// factorKey is the model-minus-null figure's key when several models
+// meet several nulls: one entry per model (its colour and marker) and one
+// per null (its line pattern), rather than one per pair, whose rows
+// (21 for 7 models and 3 nulls) pushed the panel off the figure.
+// nullIndex gives each null's index j.
+func factorKey(r *Results, models, nulls map[string]bool, nullIndex map[string]int) []legendItem {
+	var items []legendItem
+	for i, m := range r.Sensitivity.ModelNames {
+		if models[m] {
+			ls := lineStyle(modelColor(i), 1, nil)
+			items = append(items, legendItem{m, glyphThumb{gs: markerStyle(i), line: &ls}})
+		}
+	}
+	ns := make([]string, 0, len(nulls))
+	for n := range nulls {
+		ns = append(ns, n)
+	}
+	sort.Slice(ns, func(a, b int) bool { return nullIndex[ns[a]] < nullIndex[ns[b]] })
+	for _, n := range ns {
+		items = append(items, legendItem{"− " + ModelLabel(r, n), lineThumb{lineStyle(ink, 1, gapDash(nullIndex[n]))}})
+	}
+	return items
+}
+
+// nullGapPanelMin is the least height of the model-minus-null panel
+// under its key (our choice: the 90 mm figure less two key rows).
+const nullGapPanelMin = 90*vg.Millimeter - 2*legendRowHeight - 4
+
 // nullZeroGrey draws the line at 0 of the model-minus-null figure.
 var nullZeroGrey = color.Gray{Y: 100}
 
@@ -168,8 +234,14 @@ func nullGapFigures(r *Results) []figure {
 	f := figure{Name: nullFigureName, Title: "Model minus null per extent",
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale); " +
 			"a line joins the extents of one nested chain (extents in no chain are markers alone). " +
+			gapStyleSentence(gapNulls(r)) +
 			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
 		W: twoColumns, H: 90 * vg.Millimeter}
+	// The figure grows with its key, so that the panel keeps its height.
+	if _, items, err := nullGapPlot(r, f.W-vg.Points(30)); err == nil && items != nil {
+		keyH := vg.Length(len(legendRows(items, f.W)))*legendRowHeight + vg.Points(4)
+		f.H = min(maxHeight, max(f.H, keyH+nullGapPanelMin))
+	}
 	f.draw = func(c draw.Canvas) error {
 		p, items, err := nullGapPlot(r, f.W-vg.Points(30))
 		if err != nil || p == nil {
@@ -183,4 +255,13 @@ func nullGapFigures(r *Results) []figure {
 		return nil
 	}
 	return []figure{f}
+}
+
+// gapStyleSentence says how the model-minus-null figure tells its lines
+// apart (addGapSeries's line patterns).
+func gapStyleSentence(nulls int) string {
+	if nulls > 1 {
+		return "Colour and marker tell the model, the line pattern the null. "
+	}
+	return "Colour, marker and line pattern tell the model. "
 }

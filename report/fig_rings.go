@@ -588,6 +588,32 @@ func ringPageNumber(base string) (int, bool) {
 	return n, true
 }
 
+// ringPagesSentence tells why the waterfall has more pages than one: the
+// models' rows do not fit one page, and the nulls' chains start a page of
+// their own (a run with one chain and the distance-only null has two pages
+// whose rows would fit one). "" for one page.
+func ringPagesSentence(pages []ringPage) string {
+	var more, nullPages []string
+	for q := 1; q < len(pages); q++ {
+		if pages[q].segs[0].w.models[0] < 0 {
+			nullPages = append(nullPages, ringPageName(q))
+		} else {
+			more = append(more, ringPageName(q))
+		}
+	}
+	out := ""
+	if len(more) > 0 {
+		out += fmt.Sprintf(" The rows, at least %g times the label height apart, do not fit one page: the chains continue in %s.", ringMinPitch, strings.Join(more, ", "))
+	}
+	switch {
+	case len(nullPages) == 1:
+		out += fmt.Sprintf(" The nulls' chains are on a page of their own, %s.", nullPages[0])
+	case len(nullPages) > 1:
+		out += fmt.Sprintf(" The nulls' chains are on pages of their own, %s.", strings.Join(nullPages, ", "))
+	}
+	return out
+}
+
 // ringsFigures draws the waterfall panels on as many pages as their rows
 // need at the row pitch of ringRowPitch: ring_steps, then ring_steps_2,
 // ring_steps_3, ... (the models' chains first, then the nulls'). A long
@@ -638,13 +664,7 @@ func ringsFigures(r *Results) []figure {
 		if pi == 0 {
 			f.Note = ringsNote
 			f.Caption = caption
-			if len(pages) > 1 {
-				var rest []string
-				for q := 1; q < len(pages); q++ {
-					rest = append(rest, ringPageName(q))
-				}
-				f.Caption += fmt.Sprintf(" The rows, at least %.2g times the label height apart, do not fit one page: the chains continue in %s.", ringMinPitch, strings.Join(rest, ", "))
-			}
+			f.Caption += ringPagesSentence(pages)
 		} else {
 			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))
 		}

@@ -302,3 +302,43 @@ func TestRingFigureSVG(t *testing.T) {
 		}
 	}
 }
+
+// TestRingPagesSentence: a run with one short chain and the distance-only
+// null has two waterfall pages only because the nulls' chains start a page
+// of their own, yet the caption said the rows "do not fit one page"; and
+// it printed the row pitch 1.25 as "1.2" (%.2g). The caption now says
+// which pages hold the models' overflow and which the nulls' chains.
+func TestRingPagesSentence(t *testing.T) {
+	null := func(w *chainWaterfall) *chainWaterfall {
+		for k := range w.models {
+			w.models[k] = -1
+		}
+		return w
+	}
+	for _, tc := range []struct {
+		rows       int
+		withNull   bool
+		want, dont []string
+	}{
+		{3, true, []string{"The nulls' chains are on a page of their own, ring_steps_2."}, []string{"do not fit"}},
+		{3, false, nil, []string{"do not fit", "nulls"}},
+		{200, true, []string{"at least 1.25 times the label height apart, do not fit one page: the chains continue in ring_steps_2", "The nulls' chains are on a page of their own, ring_steps_"}, nil},
+	} {
+		panels := []*chainWaterfall{syntheticWaterfall("region", tc.rows, 2, 0)}
+		if tc.withNull {
+			panels = append(panels, null(syntheticWaterfall("points", 3, 1, 2)))
+		}
+		l := newRingLayout(panels, 2, 2*legendRowHeight+vg.Points(4), vg.Points(60))
+		got := ringPagesSentence(l.pages)
+		for _, w := range tc.want {
+			if !strings.Contains(got, w) {
+				t.Errorf("%d rows, null %v, %d pages: %q lacks %q", tc.rows, tc.withNull, len(l.pages), got, w)
+			}
+		}
+		for _, d := range tc.dont {
+			if strings.Contains(got, d) {
+				t.Errorf("%d rows, null %v, %d pages: %q says %q", tc.rows, tc.withNull, len(l.pages), got, d)
+			}
+		}
+	}
+}

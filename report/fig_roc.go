@@ -116,6 +116,9 @@ func rocFigure(r *Results) figure {
 	}
 	f := figure{Name: rocFigureName, Title: "ROC curves on the area axis", W: twoColumns}
 	barW := 24 * vg.Millimeter
+	if !rampCurves(es) {
+		barW = 0 // no curve on the area ramp: no colour bar to read
+	}
 	if cols == 1 {
 		f.W = oneColumn
 	}
@@ -141,7 +144,7 @@ func rocFigure(r *Results) figure {
 			plots[i/cols][i%cols] = p
 		}
 		drawTiles(plots, rest)
-		if amax > 0 {
+		if amax > 0 && barW > 0 {
 			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
 			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
 			var marks []float64
@@ -177,10 +180,15 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 	if len(anchors) > 0 {
 		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
+	curves := "one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)" + anchorNote
+	if !rampCurves(es) {
+		// Only the base region and the whole raster: no colour bar.
+		curves = "one curve per extent: " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
+	}
 	c := fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
-		"predicted present (y), one panel per model%s, one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)%s"+
+		"predicted present (y), one panel per model%s, %s"+
 		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
-		"The selector under the figures names each curve.", perNull, anchorNote, fmtG(e))
+		"The selector under the figures names each curve.", perNull, curves, fmtG(e))
 	if len(nulls(r)) > 0 {
 		c += " A null's panel is shaded light grey: a reference, not a model."
 	}
@@ -190,6 +198,19 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 			"the selector under the figures draws any of the %d.", nAll, rocMaxCurves, len(es), nAll)
 	}
 	return c
+}
+
+// rampCurves reports whether any curve of es is coloured by its area:
+// the base region and the whole raster keep their own styles, so a family
+// of those two alone has no curve on the area ramp, and its colour bar
+// (ticked at their areas) keyed nothing drawn.
+func rampCurves(es []Extent) bool {
+	for _, ex := range es {
+		if _, ok := rocAnchorStyle(ex.Kind); !ok {
+			return true
+		}
+	}
+	return false
 }
 
 // rocLegend is the ROC figure's key: the partial ROC band (e > 0), the

@@ -4,6 +4,7 @@ import (
 	"image/color"
 	"math"
 	"strings"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -47,27 +48,72 @@ func textWidth(s string, pt float64) vg.Length {
 }
 
 // wrapText breaks s at spaces into lines no wider than w at size pt. A
-// single word wider than w stays whole on its own line.
+// single word wider than w (a model's name has no spaces) is broken after
+// its '_', '-' or '.', and a piece still wider than w between two
+// characters, so that no line runs past w.
 func wrapText(s string, pt float64, w vg.Length) string {
-	words := strings.Fields(s)
 	var lines []string
 	cur := ""
-	for _, word := range words {
-		try := word
-		if cur != "" {
-			try = cur + " " + word
+	for _, word := range strings.Fields(s) {
+		for k, piece := range wordPieces(word, pt, w) {
+			try := piece
+			if cur != "" && k == 0 {
+				try = cur + " " + piece
+			} else if cur != "" {
+				try = cur + piece
+			}
+			if cur != "" && textWidth(try, pt) > w {
+				lines = append(lines, cur)
+				cur = piece
+				continue
+			}
+			cur = try
 		}
-		if cur != "" && textWidth(try, pt) > w {
-			lines = append(lines, cur)
-			cur = word
-			continue
-		}
-		cur = try
 	}
 	if cur != "" {
 		lines = append(lines, cur)
 	}
 	return strings.Join(lines, "\n")
+}
+
+// wordPieces splits word, when it is wider than w at size pt, into the
+// pieces that end at a '_', '-' or '.' (the separator kept at a piece's
+// end), and a piece still wider than w into runs of characters no wider
+// than w; a word no wider than w is one piece.
+func wordPieces(word string, pt float64, w vg.Length) []string {
+	if textWidth(word, pt) <= w {
+		return []string{word}
+	}
+	var pieces []string
+	start := 0
+	for i, c := range word {
+		if c == '_' || c == '-' || c == '.' {
+			pieces = append(pieces, word[start:i+1])
+			start = i + 1
+		}
+	}
+	if start < len(word) {
+		pieces = append(pieces, word[start:])
+	}
+	var out []string
+	for _, p := range pieces {
+		for textWidth(p, pt) > w {
+			n := 0
+			for i := range p {
+				if i > 0 && textWidth(p[:i], pt) > w {
+					break
+				}
+				n = i
+			}
+			if n == 0 { // one character wider than w
+				_, n = utf8.DecodeRuneInString(p)
+			}
+			out = append(out, p[:n])
+			p = p[n:]
+		}
+		out = append(out, p)
+	}
+	return out
 }
 
 // Colours.
@@ -208,8 +254,41 @@ func legendRows(items []legendItem, w vg.Length) [][]legendItem {
 	if len(cur) > 0 {
 		rows = append(rows, cur)
 	}
-	return rows
+	return wrapLegendRows(rows, w)
 }
+
+// wrapLegendRows breaks the label of an item wider than w, alone on its
+// row (the label of a point mark in a one-column map figure's key), into
+// lines that fit, each on a row of its own under the item's marker, so
+// that no key runs off its figure.
+func wrapLegendRows(rows [][]legendItem, w vg.Length) [][]legendItem {
+	var out [][]legendItem
+	for _, row := range rows {
+		// Drawn, an item reaches 4 + 26 pt and its label's width past
+		// the row's start (drawLegendRows); the 12 pt after it that
+		// legendItemWidth counts only parts items on one row.
+		room := w - vg.Points(4+26)
+		if len(row) != 1 || textWidth(row[0].label, minFontPt) <= room {
+			out = append(out, row)
+			continue
+		}
+		lines := strings.Split(wrapText(row[0].label, minFontPt, room), "\n")
+		for k, line := range lines {
+			it := legendItem{label: line, thumb: row[0].thumb}
+			if k > 0 {
+				it.thumb = noThumb{}
+			}
+			out = append(out, []legendItem{it})
+		}
+	}
+	return out
+}
+
+// noThumb is the empty thumbnail of a key label's continued line.
+type noThumb struct{}
+
+// Thumbnail implements plot.Thumbnailer.
+func (noThumb) Thumbnail(*draw.Canvas) {}
 
 func legendItemWidth(it legendItem) vg.Length {
 	return vg.Points(22+4+12) + textWidth(it.label, minFontPt)

@@ -209,8 +209,30 @@ func (d degreeTicks) Ticks(min, max float64) []plot.Tick {
 	return ts
 }
 
+// degreeLabel labels the tick at v (label: its number as niceTicks wrote
+// it). A longitude past ±180° (a grid across the antimeridian, 170°E to
+// 200°E) is named as the meridian it is, 200 as 160°W, with the decimals
+// of label; 180 is "180°", neither east nor west.
 func degreeLabel(v float64, label string, lon bool) string {
 	label = strings.TrimPrefix(label, "\u2212")
+	if lon && (v > 180 || v <= -180) {
+		decimals := 0
+		if i := strings.IndexByte(label, '.'); i >= 0 {
+			decimals = len(label) - i - 1
+		}
+		v = math.Mod(v+180, 360)
+		if v < 0 {
+			v += 360
+		}
+		v -= 180 // now in [-180, 180)
+		if v == -180 {
+			v = 180
+		}
+		label = strconv.FormatFloat(math.Abs(v), 'f', decimals, 64)
+	}
+	if lon && math.Abs(v) == 180 {
+		return label + "°"
+	}
 	switch {
 	case v == 0:
 		return label + "°"

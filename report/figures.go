@@ -232,7 +232,7 @@ func render(f figure, format string) ([]byte, error) {
 			fpdf.SetDefaultModificationDate(fixed)
 			fpdf.SetDefaultCatalogSort(true)
 		})
-		c = vgpdf.New(f.W, f.H)
+		c = pdfCanvas{vgpdf.New(f.W, f.H)}
 	default:
 		return nil, fmt.Errorf("report: figure %s: unknown format %q", f.Name, format)
 	}

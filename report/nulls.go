@@ -42,11 +42,15 @@ func nulls(r *Results) []Model {
 
 // nullLineStyle draws the k-th null in the metric figures: grey, dotted,
 // thinner than the models' lines, and with hollow markers, so it reads as
-// a reference and not as one more model.
+// a reference and not as one more model. Two greys alternate; each pair
+// of nulls takes the next hollow marker (circle, square, triangle), so
+// that up to six nulls (two of the user's and the distance-only null
+// already make three) are told apart by grey and marker together.
 func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 	grey := []color.Color{color.Gray{Y: 90}, color.Gray{Y: 150}}[k%2]
+	shape := []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}}[(k/2)%3]
 	return draw.LineStyle{Color: grey, Width: vg.Points(1.2), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2)}},
-		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: draw.RingGlyph{}}
+		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: shape}
 }
 
 // nullSeries returns, for metric m, the null's value against the extent
@@ -212,6 +216,10 @@ func rocPanelTitle(r *Results, name string) string {
 // nulls: at their full-sample values, with no bar (no resample SD is
 // drawn for them) and not shifted along the area axis.
 const nullsInMetricsCaption = "Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."
+
+// nullsInMetricsCaptionMany is nullsInMetricsCaption for three nulls or
+// more, whose markers differ (nullLineStyle).
+const nullsInMetricsCaptionMany = "Nulls: grey open markers on dotted lines (circles for the first two, in two greys, then squares, then triangles), at their full-sample scores, without bars and not shifted."
 
 // nullGapBarsCaption reads the model-minus-null figure's bars both ways
 // (a bar wholly below 0 is as much a finding as one above) and says that

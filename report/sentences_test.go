@@ -1183,6 +1183,13 @@ func TestNullCaptions(t *testing.T) {
 	analyzed(t, r)
 	checkWords(t, "metrics caption", metricsCaption(r), []string{"Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."}, nil)
 	checkWords(t, "metrics caption without nulls", metricsCaption(loadSample(t)), nil, []string{"Nulls:"})
+	// A third null is drawn with open squares (nullLineStyle), and the
+	// caption says so rather than "open circles".
+	three := withNull(t)
+	for _, nm := range []string{"second_null", "third_null"} {
+		three.Models = append(three.Models, Model{Name: nm, Role: RoleNull})
+	}
+	checkWords(t, "metrics caption with three nulls", metricsCaption(three), []string{"then squares, then triangles"}, []string{"open circles"})
 	for _, f := range nullGapFigures(r) {
 		checkWords(t, "null caption", f.Caption, []string{"wholly below 0: the null beats the model", "shifted a few percent apart along the area axis"}, nil)
 		return

@@ -1,0 +1,135 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/recorder"
+)
+
+// gapResults returns results with nm models and nn nulls (the last the
+// distance-only null), each pair with an AUC difference on three extents.
+func gapResults(nm, nn int) *Results {
+	r := &Results{Sensitivity: &Sensitivity{}}
+	for i := range nm {
+		name := fmt.Sprintf("model_with_a_long_descriptive_name_%02d", i)
+		r.Models = append(r.Models, Model{Name: name})
+		r.Sensitivity.ModelNames = append(r.Sensitivity.ModelNames, name)
+	}
+	for j := range nn {
+		m := Model{Name: fmt.Sprintf("null_with_a_long_descriptive_name_%02d", j), Role: RoleNull}
+		if j == nn-1 {
+			m = Model{Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance}
+		}
+		r.Models = append(r.Models, m)
+	}
+	for _, m := range r.Sensitivity.ModelNames {
+		for _, n := range nulls(r) {
+			an := AboveNull{Metric: "auc", Model: m, Null: n.Name, Defined: 3}
+			for k, a := range []float64{1e5, 4e5, 1.6e6} {
+				an.Gaps = append(an.Gaps, NullGap{Extent: fmt.Sprint("e", k), AreaKm2: a, Defined: true, Diff: 0.1, Low: 0.05, High: 0.15})
+			}
+			r.Sensitivity.AboveNull = append(r.Sensitivity.AboveNull, an)
+		}
+	}
+	return r
+}
+
+// TestNullGapPanelKeepsHeight: with 7 models and 3 nulls the key of the
+// model-minus-null figure had 21 rows in a 90 mm figure, so the panel
+// under it was squeezed to nothing and its title and axis labels were
+// drawn over the key (seen in a study's model_minus_null.png). The panel
+// title and the x-axis title, as drawn, must lie inside the figure, below
+// every key row, and at least 50 mm apart (the panel between them).
+func TestNullGapPanelKeepsHeight(t *testing.T) {
+	for _, tc := range []struct{ nm, nn int }{{1, 1}, {2, 1}, {2, 2}, {7, 3}, {12, 6}} {
+		r := gapResults(tc.nm, tc.nn)
+		figs := nullGapFigures(r)
+		if len(figs) != 1 {
+			t.Fatalf("%+v: %d figures", tc, len(figs))
+		}
+		f := figs[0]
+		rec := &recorder.Canvas{}
+		c := draw.NewCanvas(rec, f.W, f.H)
+		if err := f.draw(c); err != nil {
+			t.Fatal(err)
+		}
+		keyLow, titleY, axisY := f.H, vg.Length(-1), vg.Length(-1)
+		for _, a := range rec.Actions {
+			fs, ok := a.(*recorder.FillString)
+			if !ok || fs.String == "AUC difference (model − null)" {
+				continue // the y-axis title is drawn on a rotated canvas
+			}
+			if fs.Point.Y < 0 || fs.Point.Y > f.H {
+				t.Errorf("%+v: %q drawn at y %.1f pt, outside the %.1f pt figure", tc, fs.String, fs.Point.Y.Points(), f.H.Points())
+			}
+			switch {
+			case fs.String == "AUC: model minus null, on the same test points":
+				titleY = fs.Point.Y
+			case fs.String == "extent area (1000 km²)":
+				axisY = fs.Point.Y
+			case strings.HasPrefix(fs.String, "model_with") || strings.HasPrefix(fs.String, "− "):
+				keyLow = min(keyLow, fs.Point.Y)
+			}
+		}
+		if titleY < 0 || axisY < 0 {
+			t.Fatalf("%+v: title at %v, axis title at %v", tc, titleY, axisY)
+		}
+		if titleY >= keyLow {
+			t.Errorf("%+v: panel title at y %.1f pt is not below the key (lowest row %.1f pt)", tc, titleY.Points(), keyLow.Points())
+		}
+		if gap := titleY - axisY; gap < 50*vg.Millimeter {
+			t.Errorf("%+v: panel %.1f mm tall between its title and x-axis title, want at least 50 mm", tc, gap/vg.Millimeter)
+		}
+	}
+}
+
+// TestNullGapPairsTellApart: two nulls besides the first were both drawn
+// dotted, and a model whose own pattern is dotted (the third) drew all its
+// pairs alike, so a reader could not tell which null a line subtracts.
+// Every pair of models and nulls (up to six of each) differs in colour,
+// marker or line pattern.
+func TestNullGapPairsTellApart(t *testing.T) {
+	seen := map[string]string{}
+	for i := range 6 {
+		for j := range 6 {
+			ls := lineStyle(modelColor(i), 1, gapDash(j))
+			key := fmt.Sprintf("%s %T %v", svgColor(ls.Color), markerStyle(i).Shape, ls.Dashes)
+			pair := fmt.Sprint(i, "-", j)
+			if p, ok := seen[key]; ok {
+				t.Errorf("pair %s drawn as pair %s (%s)", pair, p, key)
+			}
+			seen[key] = pair
+		}
+	}
+	// With one null each model keeps its own pattern (modelDash, as in
+	// the other figures), and the caption says which reading applies.
+	for _, tc := range []struct {
+		nulls int
+		want  string
+	}{{1, "Colour, marker and line pattern tell the model."}, {2, "Colour and marker tell the model, the line pattern the null."}} {
+		f := nullGapFigures(gapResults(2, tc.nulls))
+		if len(f) != 1 || !strings.Contains(f[0].Caption, tc.want) {
+			t.Errorf("%d nulls: caption lacks %q", tc.nulls, tc.want)
+		}
+	}
+	// Patterns that differ only by a fraction of a point read as one.
+	for a := range 6 {
+		for b := range a {
+			da, db := gapDash(a), gapDash(b)
+			if len(da) == len(db) {
+				near := true
+				for k := range da {
+					d := da[k] - db[k]
+					near = near && d < vg.Points(1) && d > -vg.Points(1)
+				}
+				if near {
+					t.Errorf("null patterns %d and %d nearly alike: %v, %v", a, b, da, db)
+				}
+			}
+		}
+	}
+}
