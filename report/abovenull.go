@@ -188,7 +188,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, plural(g.CommonPoints), MinPairedPoints)
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
@@ -262,7 +262,7 @@ func (an *AboveNull) gapEnds() (small, large string) {
 			out += " where it is defined"
 		}
 		if g := an.gap(id); g != nil && g.Reading == ReadingTooFew {
-			out += fmt.Sprintf(", on %d common test point%s, not read", g.CommonPoints, plural(g.CommonPoints))
+			out += fmt.Sprintf(", on %d common test point%s, not read", g.CommonPoints, Plural(g.CommonPoints))
 		}
 		return "(" + out + ")"
 	}
@@ -326,7 +326,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.CommonPoints, plural(g.CommonPoints), MinPairedPoints)
+				signed3(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
 		}
 		switch {
 		case an.Defined >= 2 && an.allZero():

@@ -75,7 +75,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	if c.NullPairs > 0 {
 		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
+			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -192,7 +192,7 @@ func (s *BatchSummary) effectSentence() string {
 		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
 	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, r.EffectPoints, plural(r.EffectPoints))
+		return fmt.Sprintf("%s (study %s, model %s, extent %s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, r.EffectPoints, Plural(r.EffectPoints))
 	}
 	fewText := ""
 	if few > 0 {
@@ -229,9 +229,9 @@ func (s *BatchSummary) testPointsSentence() string {
 	slices.Sort(ns)
 	if ns[0] == ns[len(ns)-1] {
 		if len(ns) == 1 {
-			return fmt.Sprintf("The study held %d test point%s on its base extent.", ns[0], plural(ns[0]))
+			return fmt.Sprintf("The study held %d test point%s on its base extent.", ns[0], Plural(ns[0]))
 		}
-		return fmt.Sprintf("Every study held %d test point%s on its base extent.", ns[0], plural(ns[0]))
+		return fmt.Sprintf("Every study held %d test point%s on its base extent.", ns[0], Plural(ns[0]))
 	}
 	med := float64(ns[len(ns)/2])
 	if len(ns)%2 == 0 {

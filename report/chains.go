@@ -254,7 +254,7 @@ func fewPointsClause(fewest int) string {
 	if fewest < 0 || fewest >= MinPairedPoints {
 		return ""
 	}
-	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): the shares describe them and are not judged.", fewest, plural(fewest), MinPairedPoints)
+	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): the shares describe them and are not judged.", fewest, Plural(fewest), MinPairedPoints)
 }
 
 // ringClause says what a ring's AUC means, following its value: whether

@@ -94,7 +94,7 @@ func (a *analysis) truncationSentence(t *TruncationCheck) string {
 		}
 	}
 	if len(t.Tails) > 0 {
-		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), plural(len(t.Tails)), f3(t.MaxJump), fmtG(TailJumpFlag))
+		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), Plural(len(t.Tails)), f3(t.MaxJump), fmtG(TailJumpFlag))
 		s += ". Full AUC gives those test points half credit against the whole tied area"
 	}
 	e := "E"

@@ -455,7 +455,7 @@ func metricsCaption(r *Results) string {
 		}
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",
-			st.Iterations, plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
+			st.Iterations, Plural(st.Iterations), fmtG(100*st.ResampleFraction), bootstrapNote(st), bar)
 	}
 	if st.PairedResamples >= 2 || st.Iterations >= 2 {
 		// Extents share their test points: bars that overlap say nothing

@@ -87,7 +87,7 @@ func verdictPhrase(mv *ModelVerdict) string {
 	}
 	few := ""
 	if d.Position == positionTooFew {
-		few = fmt.Sprintf(", on %d common test point%s: not judged", d.CommonPoints, plural(d.CommonPoints))
+		few = fmt.Sprintf(", on %d common test point%s: not judged", d.CommonPoints, Plural(d.CommonPoints))
 	}
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
 		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
@@ -108,9 +108,9 @@ func rankingClause(rk ModelRanking) string {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
-		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, plural(n))
+		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, Plural(n))
 	}
-	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d extent%s", a, b, better, n, plural(n))
+	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d extent%s", a, b, better, n, Plural(n))
 	if worse > 0 {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
@@ -151,7 +151,7 @@ func testPointText(s *Sensitivity) string {
 		lo, hi = min(lo, n), max(hi, n)
 	}
 	if !s.TestPointsVary {
-		return fmt.Sprintf("%d test point%s on each", lo, plural(lo))
+		return fmt.Sprintf("%d test point%s on each", lo, Plural(lo))
 	}
 	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
 }
@@ -239,7 +239,7 @@ func headline(a *analysis, s *Sensitivity) string {
 		}
 		nowhere := s.scoredNowhere()
 		if len(nowhere) > 0 {
-			fmt.Fprintf(&b, " Model%s %s %s not scored on any extent (Scores table).", plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
+			fmt.Fprintf(&b, " Model%s %s %s not scored on any extent (Scores table).", Plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
 		}
 		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
 			key := MetricKeyPartialROC(a.r.Settings.E[0])

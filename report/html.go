@@ -35,7 +35,7 @@ var pageFiles embed.FS
 
 // pageTemplate is report.html.tmpl, parsed once.
 var pageTemplate = template.Must(template.New("report.html.tmpl").
-	Funcs(template.FuncMap{"plural": plural}).
+	Funcs(template.FuncMap{"plural": Plural}).
 	ParseFS(pageFiles, "page/report.html.tmpl"))
 
 // pageAsset returns an embedded file; the names are fixed above, so a
@@ -313,7 +313,7 @@ func baseNote(r *Results) string {
 	if e.Kind == vocab.KindBase {
 		kind = "the study region as given, "
 	}
-	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test point%s", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test, plural(r.PointCounts.Test))
+	what := fmt.Sprintf("%s%s; %s km²; %d of the %d test point%s", kind, e.Params, fmtArea(e.AreaKm2), e.TestPoints, r.PointCounts.Test, Plural(r.PointCounts.Test))
 	if len(s.ScoredExtents) == 1 {
 		return fmt.Sprintf("The one scored extent is %s (%s).", e.ID, what)
 	}

@@ -83,7 +83,7 @@ func methodsFamily(b *strings.Builder, r *Results, sw string) {
 	}
 	fam := familyList(ok)
 	fmt.Fprintf(b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), plural(len(models)), joinList(models), len(ok), plural(len(ok)), sw, joinList(fam))
+		len(models), Plural(len(models)), joinList(models), len(ok), Plural(len(ok)), sw, joinList(fam))
 	if len(s.SkippedExtents) > 0 {
 		var sk []string
 		for _, e := range s.SkippedExtents {
@@ -158,7 +158,7 @@ func methodsScores(b *strings.Builder, r *Results) {
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
-		fmt.Fprintf(b, " and at fixed threshold%s %s", plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
+		fmt.Fprintf(b, " and at fixed threshold%s %s", Plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
 	}
 	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
 	// The predicted area is judged like the other scores: say what it is.
@@ -384,7 +384,9 @@ func pairedWhat(s *Sensitivity) string {
 	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ") + ","
 }
 
-func plural(n int) string {
+// Plural is "s" after a count of n other than 1 ("1 extent", "2
+// extents"): the one pluralisation of the tool's sentences and messages.
+func Plural(n int) string {
 	if n == 1 {
 		return ""
 	}
@@ -430,7 +432,7 @@ func resultNumbers(r *Results) string {
 		if mv.BaseDefined {
 			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, plural(sp.N),
+		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, Plural(sp.N),
 			onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""
@@ -454,7 +456,7 @@ func resultNumbers(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			out += fmt.Sprintf(" By AUC, %s and %s scored the same on %s (every paired difference 0).", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rk.WithinNoise)
+			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rk.WithinNoise)
 		}
 	}
 	if s.Independence.Defined {
@@ -542,7 +544,7 @@ func reviewerText(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rankingOrderText(rk))
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -565,7 +567,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 	s, st := r.Sensitivity, r.Settings
 	n := len(s.ScoredExtents)
 	b.WriteString("We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. ")
-	fmt.Fprintf(b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, plural(n))
+	fmt.Fprintf(b, "We rescored the same predictions, with the same settings, on %d evaluation extent%s", n, Plural(n))
 	if n > 0 {
 		lo, hi := -1.0, -1.0
 		for _, e := range r.Extents {
@@ -584,7 +586,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 			fmt.Fprintf(b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, plural(n-1), areaRange(lo, hi))
+			fmt.Fprintf(b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, Plural(n-1), areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {
@@ -744,7 +746,7 @@ func reviewerNullText(s *Sensitivity) string {
 		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		switch {
 		case an.BaseReading == ReadingTooFew:
-			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, plural(g.CommonPoints)))
+			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, Plural(g.CommonPoints)))
 		case g.zero():
 			n.same = append(n.same, an.Model)
 		case an.BaseReading == ReadingAbove:

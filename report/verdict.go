@@ -199,7 +199,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
 		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s%s",
-			name, outside, len(mv.Diffs), plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
+			name, outside, len(mv.Diffs), Plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
@@ -271,7 +271,7 @@ func (a *analysis) undefinedText(m MetricInfo, model string, mv ModelVerdict) st
 		}
 		if sc := a.score(model, d.Extent); sc != nil && d.CommonPoints < 2 {
 			if _, ok, _, _, _, _ := metricValue(m, sc); ok {
-				apart = append(apart, fmt.Sprintf("%s (%d common test point%s)", d.Extent, d.CommonPoints, plural(d.CommonPoints)))
+				apart = append(apart, fmt.Sprintf("%s (%d common test point%s)", d.Extent, d.CommonPoints, Plural(d.CommonPoints)))
 				continue
 			}
 		}
@@ -307,7 +307,7 @@ func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) stri
 	if n == 0 {
 		return ""
 	}
-	out := fmt.Sprintf("; the 95%% interval straddles ±%s on %d of %d extent%s", fmtG(tol), n, len(ds), plural(len(ds)))
+	out := fmt.Sprintf("; the 95%% interval straddles ±%s on %d of %d extent%s", fmtG(tol), n, len(ds), Plural(len(ds)))
 	if far.Extent != big.Extent {
 		out += ", reaching furthest beyond it with " + differenceText(*far, tol)
 	}
@@ -478,13 +478,13 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
 				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
 				}
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Better, r.Extents, plural(r.Extents), r.Worse, r.WithinNoise)
+					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
 				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, plural(tooFew), MinPairedPoints)
+					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
 				}
 			}
 			out = append(out, r)

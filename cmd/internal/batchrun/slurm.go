@@ -18,6 +18,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/slurm"
+	"areasweep/report"
 )
 
 // clientsPresent checks, before anything is written, that the SLURM
@@ -139,7 +140,7 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		fmt.Fprintf(w, "not submitted: %s: %s was made %s; add --force to run it again, or %s\n", s.st.id, s.st.dir, s.why.why, s.why.remedy)
 		staleIDs = append(staleIDs, s.st.id)
 	}
-	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, plural(p.CPUs))
+	fmt.Fprintf(w, "job array: %s (%d tasks, %d not finished; %d MiB and %d CPU%s per task)\n", files.Array, len(p.Tasks), len(pending), p.MemoryMB, p.CPUs, report.Plural(p.CPUs))
 	fmt.Fprintf(w, "merge job: %s\nmanifest:  %s\nlogs:      %s\n", files.Merge, files.Manifest, files.Logs)
 	if !o.Slurm.Submit {
 		if len(pending) > 0 {
@@ -270,11 +271,4 @@ func slurmPending(o *Options, p *slurm.Plan, studies []*study) (pending []int, s
 		}
 	}
 	return pending, stale, nil
-}
-
-func plural(n int) string {
-	if n == 1 {
-		return ""
-	}
-	return "s"
 }

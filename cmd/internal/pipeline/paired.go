@@ -44,7 +44,7 @@ func (s *Study) paired() error {
 	s.res.Paired = []report.Paired{}
 	if b := s.o.Iterations; b < report.MinPercentileResamples {
 		s.warn(fmt.Sprintf("--iterations %d: the 95%% intervals of the paired differences of the partial ROC ratio, the omission rates and the Boyce index, and the published partial ROC bootstrap's interval and P, come from %d resample%s; with fewer than %d a 2.5th and a 97.5th percentile do not lie inside the resampled values (our cut-off), so those intervals, and the verdicts, model comparisons and readings against a null taken from them, are not reliable: use --iterations 1000 (the default) for inference (the AUC's intervals come from the placements and do not depend on it)",
-			b, b, map[bool]string{true: "", false: "s"}[b == 1], report.MinPercentileResamples))
+			b, b, report.Plural(b), report.MinPercentileResamples))
 	}
 	jobs := s.pairJobs()
 	// Each comparison is deterministic on its own; run them on the workers

@@ -554,7 +554,7 @@ func (s *Study) warnSharedTestCells() {
 		return
 	}
 	s.warn(fmt.Sprintf("%d of the %d test points scored lie in a cell with another test point (--no-thin keeps them: %d distinct cell%s): the bootstrap and paired intervals, the binomial tests and the cut-off of %d common test points count every point as an independent record, which points of one cell are not (each model gives them one value), so the intervals are too narrow and differences read as beyond noise too readily; for inference leave out --no-thin",
-		shared, scored, len(seen), map[bool]string{true: "", false: "s"}[len(seen) == 1], report.MinPairedPoints))
+		shared, scored, len(seen), report.Plural(len(seen)), report.MinPairedPoints))
 }
 
 // countPoints fills Results.PointCounts from the points' statuses.
