@@ -1,6 +1,7 @@
 package report
 
 import (
+	"golang.org/x/text/encoding/charmap"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/vgpdf"
@@ -20,11 +21,9 @@ func (c pdfCanvas) FillString(f font.Face, pt vg.Point, s string) {
 }
 
 // winAnsi returns s in code page 1252 (WinAnsiEncoding, PDF 32000-1:2008,
-// Annex D.2): ASCII and U+00A0 to U+00FF as they are, the 27 characters
-// of 0x80 to 0x9F by the code page's table (Microsoft's published
-// bestfit1252 mapping), U+2212 (minus sign), which the code page lacks, as
-// its en dash (0x96), the nearest glyph it has, and any other character as
-// "?".
+// Annex D.2), by golang.org/x/text's table of the code page: U+2212
+// (minus sign), which the code page lacks, as its en dash (0x96), the
+// nearest glyph it has, and any other character it lacks as "?".
 func winAnsi(s string) string {
 	ascii := true
 	for i := 0; i < len(s); i++ {
@@ -35,26 +34,14 @@ func winAnsi(s string) string {
 	}
 	b := make([]byte, 0, len(s))
 	for _, r := range s {
-		switch {
-		case r < 0x80 || (r >= 0xA0 && r <= 0xFF):
-			b = append(b, byte(r))
-		case r == '\u2212':
-			b = append(b, 0x96)
-		default:
-			c, ok := cp1252High[r]
-			if !ok {
-				c = '?'
-			}
-			b = append(b, c)
+		if r == '\u2212' {
+			r = '\u2013'
 		}
+		c, ok := charmap.Windows1252.EncodeRune(r)
+		if !ok {
+			c = '?'
+		}
+		b = append(b, c)
 	}
 	return string(b)
-}
-
-// cp1252High maps the characters of code page 1252's bytes 0x80 to 0x9F.
-var cp1252High = map[rune]byte{
-	'€': 0x80, '‚': 0x82, 'ƒ': 0x83, '„': 0x84, '…': 0x85, '†': 0x86, '‡': 0x87,
-	'ˆ': 0x88, '‰': 0x89, 'Š': 0x8A, '‹': 0x8B, 'Œ': 0x8C, 'Ž': 0x8E,
-	'‘': 0x91, '’': 0x92, '“': 0x93, '”': 0x94, '•': 0x95, '–': 0x96, '—': 0x97,
-	'˜': 0x98, '™': 0x99, 'š': 0x9A, '›': 0x9B, 'œ': 0x9C, 'ž': 0x9E, 'Ÿ': 0x9F,
 }
