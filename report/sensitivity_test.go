@@ -493,7 +493,8 @@ func TestStatsWorkedExamples(t *testing.T) {
 		t.Errorf("ols through 3 points: r^2 not defined")
 	}
 	// Through two points the line passes exactly: r^2 would be 1 whatever
-	// they are, so it is not defined (the slope is).
+	// they are, so it is not defined (the slope is: (0.2 - 0.7) / 1 = -0.5, by
+	// hand).
 	if f, ok := ols([]float64{0, 1}, []float64{0.7, 0.2}); !ok || f.r2Defined || math.Abs(f.b+0.5) > 1e-12 {
 		t.Errorf("ols through 2 points = %+v, %v; want slope -0.5 and r^2 not defined", f, ok)
 	}
