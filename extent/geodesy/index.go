@@ -128,11 +128,22 @@ func ECEF(lat, lon float64) [3]float64 {
 //
 //	(a cos beta cos lon, a cos beta sin lon, b sin beta),  tan beta = (1 - f) tan phi.
 func ecefOf(phi, sl, cl float64) [3]float64 {
+	ar, zr := parametric(phi)
+	return [3]float64{ar * cl, ar * sl, zr}
+}
+
+// ECEFRow returns the parts of ECEF that depend on the latitude alone,
+// a cos(beta) and b sin(beta) at geodetic latitude lat (degrees), so that
+// ECEF(lat, lon) = (ar cos lon, ar sin lon, zr) bit for bit: a row of a
+// latitude-longitude grid computes them once.
+func ECEFRow(lat float64) (ar, zr float64) { return parametric(lat * math.Pi / 180) }
+
+// parametric is ECEFRow for latitude phi in radians.
+func parametric(phi float64) (ar, zr float64) {
 	sp, cp := math.Sincos(phi)
 	sp *= 1 - Flattening
 	h := math.Hypot(sp, cp)
-	sb, cb := sp/h, cp/h
-	return [3]float64{SemiMajor * cb * cl, SemiMajor * cb * sl, SemiMinor * sb}
+	return SemiMajor * (cp / h), SemiMinor * (sp / h)
 }
 
 // ChordUpper returns an upper bound on the geodesic distance (m) between

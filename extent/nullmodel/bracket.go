@@ -169,7 +169,7 @@ func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
 	ll.sites = make([][3]float64, ix.Len())
 	for k := range ll.sites {
 		lat, lon := ix.Site(k)
-		ll.sites[k] = ecef(lat, lon)
+		ll.sites[k] = geodesy.ECEF(lat, lon)
 	}
 	cen := func(row, c0, c1 int, lons, lats []float64) {
 		lat := north + (float64(row)+0.5)*dlat
@@ -179,23 +179,6 @@ func NewLonLat(ix *geodesy.Index, west, dlon, north, dlat float64) *Field {
 		}
 	}
 	return &Field{ix: ix, centres: cen, ll: ll}
-}
-
-// ecef returns the ECEF position (m) of geodetic (lat, lon) in degrees,
-// through the parametric latitude beta: (a cos beta cos lon, a cos beta sin
-// lon, b sin beta).
-func ecef(lat, lon float64) [3]float64 {
-	ar, zr := ecefRow(lat)
-	sl, cl := math.Sincos(lon * math.Pi / 180)
-	return [3]float64{ar * cl, ar * sl, zr}
-}
-
-// ecefRow returns a cos(beta) and b sin(beta) at latitude lat (degrees).
-func ecefRow(lat float64) (ar, zr float64) {
-	sp, cp := math.Sincos(lat * math.Pi / 180)
-	sp *= 1 - geodesy.Flattening
-	h := math.Hypot(sp, cp)
-	return geodesy.SemiMajor * cp / h, geodesy.SemiMinor * sp / h
 }
 
 func (ll *lonLat) lat(r int) float64 { return ll.north + (float64(r)+0.5)*ll.dlat }
@@ -395,7 +378,7 @@ func (f *Field) bracketLonLat(x0, y0, w, h int, need []uint64, bins Binner, lo, 
 		left: sc.left[:0], cover: &sc.cover, cellLo: math.NaN(), cellHi: math.NaN(), quickBins: quickBins{scale: bins.FloorScale()}, binW: 1 / bins.FloorScale()}
 	b.setEdges()
 	for y := range h {
-		b.rowA[y], b.rowZ[y] = ecefRow(f.ll.lat(y0 + y))
+		b.rowA[y], b.rowZ[y] = geodesy.ECEFRow(f.ll.lat(y0 + y))
 	}
 	for x := range w {
 		b.colS[x], b.colC[x] = math.Sincos(f.ll.lon(x0+x) * math.Pi / 180)
@@ -629,8 +612,8 @@ func (b *bracketer) fillCover(sr int, rho float64) {
 	cr := sr*SuperTile + SuperTile/2
 	centre := func(scol int) float64 { return ll.lon(scol*SuperTile + SuperTile/2) }
 	lat, lon := ll.lat(cr), centre((s0+s1)/2)
-	p := ecef(lat, lon)
-	span := max(dist3(p, ecef(lat, centre(s0))), dist3(p, ecef(lat, centre(s1))))
+	p := geodesy.ECEF(lat, lon)
+	span := max(dist3(p, geodesy.ECEF(lat, centre(s0))), dist3(p, geodesy.ECEF(lat, centre(s1))))
 	_, d1 := b.f.ix.NearestBounds(lat, lon, 0)
 	b.rowPar = geodesy.NewParallel(lat)
 	sl, cl := math.Sincos(lon * math.Pi / 180)
@@ -753,7 +736,7 @@ type leftCell struct {
 // b.left is not filled.
 func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 	b.left = b.left[:0]
-	pc := ecef(clat, clon)
+	pc := geodesy.ECEF(clat, clon)
 	b.csites = b.csites[:0]
 	for _, k := range b.cands {
 		p := b.ll.sites[k]

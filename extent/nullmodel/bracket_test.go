@@ -381,7 +381,7 @@ func TestChordBracket(t *testing.T) {
 		deg := math.Pow(10, -5+math.Log10(6e6)*r.Float64())
 		lat2 := math.Max(-90, math.Min(90, lat1+deg*(2*r.Float64()-1)))
 		lon2 := lon1 + deg*(2*r.Float64()-1)*3
-		d := dist3(ecef(lat1, lon1), ecef(lat2, lon2))
+		d := dist3(geodesy.ECEF(lat1, lon1), geodesy.ECEF(lat2, lon2))
 		s := geodesy.Distance(lat1, lon1, lat2, lon2)
 		lo, hi := chordBracket(d)
 		if !(lo <= s && s <= hi) {

@@ -1103,7 +1103,7 @@ func minSq(x1, x2 float64) float64 {
 }
 
 // projECEF returns the ECEF position (m) of geodetic (lat, lon) in
-// degrees, as ecef does, with the parametric latitude's norm taken by a
+// degrees, as geodesy.ECEF does, with the parametric latitude's norm taken by a
 // square root rather than math.Hypot (its terms lie in [-1, 1]).
 func projECEF(lat, lon float64) [3]float64 {
 	const rad = math.Pi / 180

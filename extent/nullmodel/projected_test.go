@@ -278,7 +278,7 @@ func TestProjECEF(t *testing.T) {
 		if i%100 == 0 {
 			lat = math.Copysign(90, lat)
 		}
-		p, q := projECEF(lat, lon), ecef(lat, lon)
+		p, q := projECEF(lat, lon), geodesy.ECEF(lat, lon)
 		if d := dist3(p, q); !(d <= 1e-8) {
 			t.Fatalf("(%v, %v): projECEF %v, ecef %v, %v m apart", lat, lon, p, q, d)
 		}
