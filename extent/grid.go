@@ -106,6 +106,11 @@ type Grid struct {
 	// as WGS84's, so cells, points and polygons may be off by about that.
 	// 0 on WGS84 and on projected grids (which are transformed).
 	DatumShiftM float64
+	// Unit and UnitM are a projected grid's coordinate unit as its CRS
+	// names it ("metre", "US survey foot") and its length in metres; ""
+	// and 0 on latitude-longitude grids and when the CRS does not say.
+	Unit  string
+	UnitM float64
 
 	// blockFactor holds, for projected grids that are not equal-area, the
 	// ratio true/planar area of each factorStep x factorStep block of cells.
@@ -244,6 +249,13 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	if g.frLL, err = newTransforms(wgs, sr); err != nil {
 		g.toLL.close()
 		return nil, notOnEarth(wkt, err)
+	}
+	if name, ok := sr.AttrValue("PROJCS|UNIT", 0); ok {
+		if m, ok := sr.AttrValue("PROJCS|UNIT", 1); ok {
+			if u, err := strconv.ParseFloat(m, 64); err == nil && u > 0 && !math.IsInf(u, 0) {
+				g.Unit, g.UnitM = name, u
+			}
+		}
 	}
 	lname := ""
 	if name, ok := sr.AttrValue("PROJECTION", 0); ok {

@@ -144,3 +144,31 @@ func TestSphereEqualArea(t *testing.T) {
 		})
 	}
 }
+
+// TestGridUnit: the unit a projected grid's CRS names for its coordinates
+// and its length in metres, recorded for the maps' axes. The lengths are
+// the EPSG registry's definitions (recalled from memory): the metre, the
+// kilometre (1000 m) and the US survey foot (1200/3937 m, EPSG:9003).
+func TestGridUnit(t *testing.T) {
+	gt := [6]float64{4e6, 1000, 0, 3e6, 0, -1000}
+	for _, tc := range []struct {
+		crs   string
+		gt    [6]float64
+		unit  string
+		unitM float64
+	}{
+		{"EPSG:3035", gt, "metre", 1},
+		{"+proj=laea +lat_0=52 +lon_0=10 +x_0=4321000 +y_0=3210000 +ellps=GRS80 +units=km +no_defs", [6]float64{4000, 1, 0, 3000, 0, -1}, "kilometre", 1000},
+		{"EPSG:2227", [6]float64{6e6, 1000, 0, 2e6, 0, -1000}, "US survey foot", 1200.0 / 3937},
+		{"EPSG:4326", [6]float64{0, 0.1, 0, 10, 0, -0.1}, "", 0},
+	} {
+		g, err := NewGrid(10, 10, tc.gt, tc.crs)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.crs, err)
+		}
+		if g.Unit != tc.unit || math.Abs(g.UnitM-tc.unitM) > 1e-15 {
+			t.Errorf("%s: unit %q, %.17g m; want %q, %.17g m", tc.crs, g.Unit, g.UnitM, tc.unit, tc.unitM)
+		}
+		g.Close()
+	}
+}

@@ -767,8 +767,9 @@ func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length
 		p.X.Tick.Marker = degreeTicks{Lon: true}
 		p.Y.Tick.Marker = degreeTicks{}
 	} else {
-		u := gridUnitText(m.r.Grid.CRS)
+		u, div := gridAxisUnit(m.r.Grid)
 		p.X.Label.Text, p.Y.Label.Text = "x ("+u+")", "y ("+u+")"
+		p.X.Tick.Marker, p.Y.Tick.Marker = gridTicks{Div: div, N: 4}, gridTicks{Div: div}
 	}
 	// The training and test points, then the outlines (thin enough to
 	// leave the points visible, and the figure's subject), then the
@@ -1178,6 +1179,45 @@ func (h haloGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 
 func haloOf(gs draw.GlyphStyle) draw.GlyphStyle {
 	return draw.GlyphStyle{Color: colorWhite, Radius: gs.Radius + vg.Points(0.7), Shape: haloGlyph{gs.Shape}}
+}
+
+// gridAxisUnit returns the unit a projected map's axes are labelled in
+// and the grid units per label unit: km and 1000 for a grid in metres
+// (7-digit coordinates such as 3500000 read as 3500), km and 1 for one in
+// kilometres, else the grid's unit and 1. The unit is the one the run
+// recorded (g.Unit, g.UnitM), else, for results written before it was
+// recorded, the one gridUnitText finds in the CRS.
+func gridAxisUnit(g Grid) (unit string, div float64) {
+	u := g.Unit
+	switch {
+	case g.UnitM == 1:
+		return "km", 1000
+	case g.UnitM == 1000:
+		return "km", 1
+	case u == "":
+		u = gridUnitText(g.CRS)
+	}
+	switch strings.ToLower(u) {
+	case "metre", "meter", "metres", "meters", "m":
+		return "km", 1000
+	}
+	return u, 1
+}
+
+// gridTicks labels a projected map's axis as niceTicks{N} labels the
+// coordinates divided by Div, each tick at its label's value times Div.
+type gridTicks struct {
+	Div float64
+	N   int
+}
+
+// Ticks implements plot.Ticker.
+func (g gridTicks) Ticks(min, max float64) []plot.Tick {
+	ts := niceTicks{N: g.N}.Ticks(min/g.Div, max/g.Div)
+	for i := range ts {
+		ts[i].Value *= g.Div
+	}
+	return ts
 }
 
 // gridUnitText names the unit of a projected grid's coordinates on the

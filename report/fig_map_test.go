@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 
@@ -269,5 +270,41 @@ func TestMapBackgroundCells(t *testing.T) {
 	}
 	if one := blockScale(src, 0); one != src {
 		t.Error("a map too small for blocks got a copy")
+	}
+}
+
+// TestGridAxisUnit: a map of a grid in metres was labelled in metres,
+// 7-digit ticks such as 3500000 that crowd a narrow panel; it is now
+// labelled in km. The WKT is GDAL's (osr ImportFromEPSG(3035),
+// ExportToWkt, WKT2_2018), whose axes are in metres; the feet CRS keeps
+// its own unit. The expected ticks are niceTicks' on the range divided by
+// 1000, worked by hand: 2,500 to 7,000 km with at most 4 labels takes the
+// step 2,000 km (1,000 gives 5 labels), so 4,000 and 6,000 km.
+func TestGridAxisUnit(t *testing.T) {
+	laea := `PROJCRS["ETRS89-extended / LAEA Europe",BASEGEOGCRS["ETRS89",DATUM["European Terrestrial Reference System 1989",ELLIPSOID["GRS 1980",6378137,298.257222101,LENGTHUNIT["metre",1]]],PRIMEM["Greenwich",0,ANGLEUNIT["degree",0.0174532925199433]],ID["EPSG",4258]],CONVERSION["Europe Equal Area 2001",METHOD["Lambert Azimuthal Equal Area",ID["EPSG",9820]]],CS[Cartesian,2],AXIS["northing (Y)",north,ORDER[1],LENGTHUNIT["metre",1]],AXIS["easting (X)",east,ORDER[2],LENGTHUNIT["metre",1]],ID["EPSG",3035]]`
+	feet := `PROJCS["NAD83 / California zone 3 (ftUS)",GEOGCS["NAD83",DATUM["North_American_Datum_1983",SPHEROID["GRS 1980",6378137,298.257222101]],UNIT["degree",0.0174532925199433]],PROJECTION["Lambert_Conformal_Conic_2SP"],UNIT["US survey foot",0.304800609601219],AUTHORITY["EPSG","2227"]]`
+	for _, tc := range []struct {
+		g    Grid
+		unit string
+		div  float64
+	}{
+		{Grid{CRS: laea}, "km", 1000},
+		{Grid{CRS: feet}, "US survey foot", 1},
+		{Grid{CRS: "EPSG:3031"}, "EPSG:3031 units", 1},
+		{Grid{CRS: "EPSG:3035", Unit: "metre", UnitM: 1}, "km", 1000},
+		{Grid{CRS: "EPSG:2227", Unit: "US survey foot", UnitM: 0.304800609601219}, "US survey foot", 1},
+		{Grid{CRS: "+proj=laea +units=km", Unit: "kilometre", UnitM: 1000}, "km", 1},
+	} {
+		if u, d := gridAxisUnit(tc.g); u != tc.unit || d != tc.div {
+			t.Errorf("gridAxisUnit(%.40q, %q, %g) = %q, %g; want %q, %g", tc.g.CRS, tc.g.Unit, tc.g.UnitM, u, d, tc.unit, tc.div)
+		}
+	}
+	ts := gridTicks{Div: 1000, N: 4}.Ticks(2.5e6, 7e6)
+	var got []string
+	for _, tk := range ts {
+		got = append(got, fmt.Sprintf("%g=%s", tk.Value, tk.Label))
+	}
+	if want := []string{"4e+06=4000", "6e+06=6000"}; !slices.Equal(got, want) {
+		t.Errorf("gridTicks{1000, 4} on 2.5e6..7e6 = %v, want %v", got, want)
 	}
 }

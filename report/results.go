@@ -145,6 +145,11 @@ type Grid struct {
 	CRS          string     `json:"crs"` // "EPSG:4326" when known, else the WKT
 	Geographic   bool       `json:"geographic"`
 	CellAreaNote string     `json:"cell_area_method"`
+	// Unit and UnitM are a projected grid's coordinate unit as its CRS
+	// names it and its length in metres, for the maps' axes (absent on
+	// latitude-longitude grids).
+	Unit  string  `json:"unit,omitempty"`
+	UnitM float64 `json:"unit_m,omitempty"`
 }
 
 // Model roles and null kinds (Model.Role, Model.NullKind).
