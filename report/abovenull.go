@@ -30,6 +30,9 @@ const (
 	ReadingBelow     = "below"     // 95% interval wholly below 0
 	ReadingUndefined = "undefined" // no paired difference could be formed
 	ReadingTooFew    = "too_few"   // on fewer than MinPairedPoints common test points: not read
+	// ReadingTooFewResamples: the interval comes from fewer than
+	// MinPercentileResamples formed paired resamples: not read.
+	ReadingTooFewResamples = "too_few_resamples"
 )
 
 // AboveNull is how far one model stands above one null on one metric, per
@@ -77,6 +80,11 @@ type NullGap struct {
 	Low        float64 `json:"ci_low"`
 	High       float64 `json:"ci_high"`
 	Reading    string  `json:"reading"`
+	// NotJudged says why a defined gap is not read (Paired.NotJudgedReason);
+	// absent when it is read.
+	NotJudged string `json:"not_judged_reason,omitempty"`
+	// nFormed is the number of resamples that formed the difference.
+	nFormed int
 }
 
 // gapReading reads a defined interval against 0.
@@ -117,19 +125,19 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p == nil {
 						continue
 					}
-					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined}
+					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined, nFormed: p.Formed()}
 					if i, ok := a.extIndex[id]; ok {
 						g.AreaKm2 = a.r.Extents[i].AreaKm2
 					}
 					if p.Defined {
 						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
 						g.Reading = gapReading(p.Low, p.High)
-						if !p.Judged() {
-							g.Reading = ReadingTooFew
+						if k := p.notJudgedKind(); k != "" {
+							g.Reading, g.NotJudged = k, p.NotJudgedReason()
 						}
 						an.Defined++
 						switch g.Reading {
-						case ReadingTooFew:
+						case ReadingTooFew, ReadingTooFewResamples:
 						case ReadingAbove:
 							an.Above++
 						case ReadingBelow:
@@ -181,7 +189,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	switch {
 	case g == nil || !g.Defined:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
-	case an.BaseReading != ReadingTooFew && g.zero():
+	case !notJudgedPosition(an.BaseReading) && g.zero():
 		// A copy of the null: "not above beyond noise" would suggest
 		// noise where there is none.
 		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s against %s).", an.BaseExtent, score, an.Model, null,
@@ -189,6 +197,9 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
+	case an.BaseReading == ReadingTooFewResamples:
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
 			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
@@ -210,18 +221,53 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
 		s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 		notTold := ""
-		if k := an.Defined - an.Above - an.NotAbove - an.Below; k > 0 {
-			notTold = fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", k, MinPairedPoints)
+		kp, kb := an.notRead()
+		if kp > 0 {
+			notTold += fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", kp, MinPairedPoints)
+		}
+		if kb > 0 {
+			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
 		}
 		small, large := an.gapEnds()
 		counts := fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d%s", an.Above, an.NotAbove, an.Below, notTold)
-		if an.Above+an.NotAbove+an.Below == 0 {
+		switch {
+		case an.Above+an.NotAbove+an.Below > 0:
+		case kb == 0:
 			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", MinPairedPoints)
+		case kp == 0:
+			counts = fmt.Sprintf("no gap is read: each interval comes from fewer than the %d formed resamples we read a gap on (our cut-off)", MinPercentileResamples)
+		default:
+			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", MinPairedPoints, MinPercentileResamples)
 		}
 		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s (a description of this family of extents).",
 			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
 	}
 	return b.String()
+}
+
+// notRead counts the defined gaps of an that are not read: kp on fewer
+// than MinPairedPoints common test points, kb from fewer than
+// MinPercentileResamples formed resamples.
+func (an *AboveNull) notRead() (kp, kb int) {
+	for _, g := range an.Gaps {
+		switch {
+		case !g.Defined:
+		case g.Reading == ReadingTooFew:
+			kp++
+		case g.Reading == ReadingTooFewResamples:
+			kb++
+		}
+	}
+	return kp, kb
+}
+
+// why says why g is not read: NotJudged, or its words from the reading
+// when NotJudged is not filled (a gap made by hand).
+func (g *NullGap) why() string {
+	if g.NotJudged != "" || !g.Defined || !notJudgedPosition(g.Reading) {
+		return g.NotJudged
+	}
+	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed)
 }
 
 // zero reports whether the gap and both ends of its interval are 0.
@@ -263,6 +309,9 @@ func (an *AboveNull) gapEnds() (small, large string) {
 		}
 		if g := an.gap(id); g != nil && g.Reading == ReadingTooFew {
 			out += fmt.Sprintf(", on %d common test point%s, not read", g.CommonPoints, Plural(g.CommonPoints))
+		}
+		if g := an.gap(id); g != nil && g.Reading == ReadingTooFewResamples {
+			out += fmt.Sprintf(", from %d formed resample%s, not read", g.nFormed, Plural(g.nFormed))
 		}
 		return "(" + out + ")"
 	}
@@ -321,12 +370,16 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
 			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
-		if an.BaseReading != ReadingTooFew && g.zero() {
+		if !notJudgedPosition(an.BaseReading) && g.zero() {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
 				signed3(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
+		}
+		if an.BaseReading == ReadingTooFewResamples {
+			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s, not judged, %s)", an.Model, an.Null, an.BaseExtent,
+				signed3(g.Diff), g.why())
 		}
 		switch {
 		case an.Defined >= 2 && an.allZero():
@@ -354,9 +407,13 @@ func aboveNullRows(r *Results) [][]cell {
 	for _, an := range r.Sensitivity.AboveNull {
 		for _, g := range an.Gaps {
 			row := []cell{tc(an.Metric), tc(an.Model), tc(ModelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
-			if g.Defined {
+			switch {
+			case g.Defined && notJudgedPosition(g.Reading):
+				// The difference describes; its interval is not read.
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), dash, tc(g.Method), tc("not judged ("+g.why()+")"))
+			case g.Defined:
 				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
-			} else {
+			default:
 				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
 			rows = append(rows, row)
@@ -395,8 +452,11 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			row = append(row, cell{text: fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " ")),
-				num: g.Diff, isN: true, cls: "n"})
+			text := fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
+			if notJudgedPosition(g.Reading) {
+				text = fmt.Sprintf("%s, not judged (%s)", signed3(g.Diff), g.why())
+			}
+			row = append(row, cell{text: text, num: g.Diff, isN: true, cls: "n"})
 		}
 		if has {
 			rows = append(rows, append([]cell{tc(e.ID), areaCell(e.AreaKm2)}, row...))
@@ -409,12 +469,12 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 const aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(normal 95% interval), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
-	"\"too few\": fewer than 10 common test points, not read (our cut-off). " +
+	"\"not judged\": fewer than 10 common test points, or an interval from fewer than 40 formed resamples; the difference is shown, its interval is not read (our cut-offs). " +
 	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0, \"too few\" (not read) on fewer than 10 common test points (our cut-off). " +
+	"\"below\" when it lies wholly below 0, \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
 	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -114,6 +114,9 @@ type BatchRow struct {
 	// fewer than MinPairedPoints (the difference is reported, not judged).
 	EffectPoints int
 	EffectJudged bool
+	// EffectNotJudged says why the extent effect is not judged
+	// (ExtentDifference.NotJudged); "" when it is.
+	EffectNotJudged string
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
 	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
 	Tolerance float64
@@ -135,6 +138,9 @@ type BatchRow struct {
 	NullDiff          float64
 	NullLow, NullHigh float64
 	NullReading       string
+	// NullNotJudged says why the null comparison is not read
+	// (NullGap.NotJudged); "" when it is.
+	NullNotJudged string
 }
 
 // BatchVerdict is one study's verdict on one metric for one model, with
@@ -149,6 +155,9 @@ type BatchVerdict struct {
 	Extent                      string
 	Diff, Low, High             float64
 	Method                      string
+	// NotJudged says why that difference is not judged
+	// (ExtentDifference.NotJudged); "" when it is.
+	NotJudged string
 }
 
 // BatchCounts adds up the studies' own verdicts.
@@ -323,13 +332,13 @@ func studyRow(r *Results, id, model string) BatchRow {
 		row.Tolerance, row.Verdict = mv.Tolerance, mv.Verdict
 		row.AUCBase, row.AUCBaseDefined = mv.BaseValue, mv.BaseDefined
 		for _, d := range mv.Diffs {
-			row.Judged = row.Judged || (d.Defined && d.Position != positionTooFew)
+			row.Judged = row.Judged || (d.Defined && !d.notJudged())
 		}
 		if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 			d := mv.Diffs[mv.Largest]
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
-			row.EffectPoints, row.EffectJudged = d.CommonPoints, d.Position != positionTooFew
+			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
 		}
 	}
 	for _, sc := range r.Scores {
@@ -342,7 +351,7 @@ func studyRow(r *Results, id, model string) BatchRow {
 		if g := an.gap(an.BaseExtent); g != nil && g.Defined {
 			row.NullDefined = true
 			row.NullDiff, row.NullLow, row.NullHigh = g.Diff, g.Low, g.High
-			row.NullReading = an.BaseReading
+			row.NullReading, row.NullNotJudged = an.BaseReading, g.why()
 		}
 	}
 	return row
@@ -440,7 +449,7 @@ func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
 		Verdict: mv.Verdict, BaseExtent: mv.Base}
 	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 		d := mv.Diffs[mv.Largest]
-		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method = true, d.Extent, d.Diff, d.Low, d.High, d.Method
+		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
 	}
 	return v
 }

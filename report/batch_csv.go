@@ -14,8 +14,8 @@ import (
 var summaryColumns = []string{
 	"study", "status", "model", "base_extent", "extents",
 	"auc_base", "test_points", "auc_min", "auc_min_extent", "auc_max", "auc_max_extent", "auc_range",
-	"effect_extent", "auc_diff", "auc_diff_ci_low", "auc_diff_ci_high", "auc_diff_points", "tolerance", "auc_verdict",
-	"null", "auc_minus_null", "auc_minus_null_ci_low", "auc_minus_null_ci_high", "null_reading",
+	"effect_extent", "auc_diff", "auc_diff_ci_low", "auc_diff_ci_high", "auc_diff_points", "auc_diff_not_judged_reason", "tolerance", "auc_verdict",
+	"null", "auc_minus_null", "auc_minus_null_ci_low", "auc_minus_null_ci_high", "null_reading", "null_not_judged_reason",
 	"error",
 }
 
@@ -24,7 +24,7 @@ var summaryColumns = []string{
 // difference from the base extent of largest magnitude.
 var verdictColumns = []string{
 	"study", "model", "metric", "label", "tolerance", "verdict", "base_extent",
-	"extent", "diff", "ci_low", "ci_high", "method",
+	"extent", "diff", "ci_low", "ci_high", "method", "not_judged_reason",
 }
 
 // num formats a number in full (shortest exact) precision, or "" when it
@@ -75,8 +75,8 @@ func summaryRecord(r BatchRow) []string {
 		r.Study, "ok", r.Model, r.BaseExtent, strconv.Itoa(r.Extents),
 		num(r.AUCBase, r.AUCBaseDefined), count(r.TestPoints, r.TestPointsKnown), num(r.AUCMin, spread), r.MinExtent, num(r.AUCMax, spread), r.MaxExtent, num(r.AUCRange, spread),
 		r.EffectExtent, num(r.Effect, r.EffectDefined), num(r.EffectLow, r.EffectDefined), num(r.EffectHigh, r.EffectDefined),
-		count(r.EffectPoints, r.EffectDefined), num(r.Tolerance, true), string(r.Verdict),
-		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null],
+		count(r.EffectPoints, r.EffectDefined), r.EffectNotJudged, num(r.Tolerance, true), string(r.Verdict),
+		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null], r.NullNotJudged,
 		"",
 	}
 }
@@ -88,7 +88,7 @@ func (s *BatchSummary) WriteVerdictsCSV(w io.Writer) error {
 	for _, v := range s.Verdicts {
 		recs = append(recs, []string{
 			v.Study, v.Model, v.Metric, v.Label, num(v.Tolerance, true), string(v.Verdict), v.BaseExtent,
-			v.Extent, num(v.Diff, v.Defined), num(v.Low, v.Defined), num(v.High, v.Defined), v.Method,
+			v.Extent, num(v.Diff, v.Defined), num(v.Low, v.Defined), num(v.High, v.Defined), v.Method, v.NotJudged,
 		})
 	}
 	if err := cw.WriteAll(recs); err != nil {

@@ -120,6 +120,11 @@ func pageRowOf(r BatchRow, link string) pageRow {
 	if r.EffectDefined {
 		pr.Effect = signed3(r.Effect) + " (" + r.EffectExtent + ", " + fmt.Sprint(r.EffectPoints) + " common)"
 		pr.Interval = signed3(r.EffectLow) + " to " + signed3(r.EffectHigh)
+		if r.EffectNotJudged != "" {
+			// A description: the interval of a difference not judged is
+			// not shown as if it were inference.
+			pr.Interval = "not judged (" + r.EffectNotJudged + ")"
+		}
 	}
 	if r.Null != "" {
 		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
@@ -127,6 +132,9 @@ func pageRowOf(r BatchRow, link string) pageRow {
 	if r.NullDefined {
 		pr.Null = signed3(r.NullDiff) + " (" + r.Null + ")"
 		pr.NullInterval = signed3(r.NullLow) + " to " + signed3(r.NullHigh)
+		if r.NullNotJudged != "" {
+			pr.NullInterval = "not judged (" + r.NullNotJudged + ")"
+		}
 	}
 	return pr
 }

@@ -218,6 +218,28 @@ const nullGapPanelMin = 90*vg.Millimeter - 2*legendRowHeight - 4
 // nullZeroGrey draws the line at 0 of the model-minus-null figure.
 var nullZeroGrey = color.Gray{Y: 100}
 
+// nullGapNotReadCaption names the differences the model-minus-null
+// figure draws with a bar although they are not read (fewer than
+// MinPairedPoints common test points): their bars are no test. "" when
+// every drawn one is read.
+func nullGapNotReadCaption(r *Results) string {
+	var few []string
+	for _, an := range r.Sensitivity.AboveNull {
+		if an.Metric != "auc" {
+			continue
+		}
+		for _, g := range an.Gaps {
+			if g.Defined && g.AreaKm2 > 0 && notJudgedPosition(g.Reading) {
+				few = append(few, fmt.Sprintf("%s − %s on %s (%d)", an.Model, an.Null, g.Extent, g.CommonPoints))
+			}
+		}
+	}
+	if len(few) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" Drawn but not read, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
+}
+
 // nullGapFigures returns the report's "model minus null per extent"
 // figure (nullGapPlot), or nothing when no AUC difference between a model
 // and a null is defined.
@@ -235,7 +257,7 @@ func nullGapFigures(r *Results) []figure {
 		Caption: "AUC of each model minus that of each null on the same test points, against the extent area (log scale); " +
 			"a line joins the extents of one nested chain (extents in no chain are markers alone). " +
 			gapStyleSentence(gapNulls(r)) +
-			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption,
+			"Vertical bars: 95% interval from the per-point placements. " + nullGapBarsCaption + nullGapNotReadCaption(r),
 		W: twoColumns, H: 90 * vg.Millimeter}
 	// The figure grows with its key, so that the panel keeps its height.
 	if _, items, err := nullGapPlot(r, f.W-vg.Points(30)); err == nil && items != nil {

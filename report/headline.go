@@ -85,12 +85,12 @@ func verdictPhrase(mv *ModelVerdict) string {
 	if d.Method == "exact" {
 		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedVs(d.Diff, tol, -tol), d.Extent)
 	}
-	few := ""
-	if d.Position == positionTooFew {
-		few = fmt.Sprintf(", on %d common test point%s: not judged", d.CommonPoints, Plural(d.CommonPoints))
+	if d.notJudged() {
+		// A description: no interval is quoted for a difference not judged.
+		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), few)
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
+		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
 }
 
 // rankingClause says one AUC model comparison in the headline, the model

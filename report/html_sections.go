@@ -18,6 +18,8 @@ type analysisView struct {
 	StandIn         string
 	PairedResamples int
 	MinPairedPoints int
+	// MinPercentileResamples is the cut-off on formed resamples.
+	MinPercentileResamples int
 	// MapModel is the model whose omitted test points the maps mark, ""
 	// without maps.
 	MapModel      string
@@ -70,7 +72,7 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, NullNote: nullThresholdNote(r)}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
 	if s.BaseExtent != vocab.BaseID {
 		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
 		if v.StandIn == "" {
@@ -106,6 +108,12 @@ func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlT
 			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
 			if !d.Defined {
 				row = append(row, dash, dash, dash, dash, tc("undefined"))
+				rows = append(rows, row)
+				continue
+			}
+			if d.notJudged() {
+				// The difference describes; its interval is not read.
+				row = append(row, nc(d.Diff, 4), dash, tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc("not judged ("+d.why()+")"))
 				rows = append(rows, row)
 				continue
 			}

@@ -182,8 +182,8 @@ func methodsInference(b *strings.Builder, r *Results) {
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
 	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off) was not judged, and the intervals were not adjusted for the number of extents compared.",
-		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints)
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints, fewResamplesNote(r))
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -467,6 +467,25 @@ func resultNumbers(r *Results) string {
 	return strings.TrimSpace(out)
 }
 
+// fewResamplesNote names, inside the methods' sentence on what was not
+// judged, the cut-off on resamples when some defined paired difference
+// of r was not judged for it (with --iterations below
+// MinPercentileResamples, or resamples that did not form); "" otherwise,
+// as in every run with enough resamples.
+func fewResamplesNote(r *Results) string {
+	n := 0
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Defined && p.notJudgedKind() == positionTooFewResamples {
+			n++
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" or with a percentile interval from fewer than %d formed resamples (our cut-off; %d of the %d paired differences here, from %d resample%s drawn)",
+		MinPercentileResamples, n, len(r.Paired), r.Settings.PairedResamples, Plural(r.Settings.PairedResamples))
+}
+
 // defaultsNote says, inside the list of tolerances, that they are
 // areasweep's defaults when all of them are: not a published standard.
 func defaultsNote(st Settings) string {
@@ -655,8 +674,27 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		if nowhere := s.scoredNowhere(); len(nowhere) > 0 {
 			why += fmt.Sprintf(", or, for %s, no extent is scored", joinList(nowhere))
 		}
-		fmt.Fprintf(b, "For %s the test records cannot tell (%s). ", joinList(undetermined), why)
+		who := "the test records cannot tell"
+		if s.fewResamples() {
+			// The run's resamples, not the test records, are short.
+			who = "no verdict was reached"
+			why += fmt.Sprintf("; here differences whose interval comes from fewer than %d formed resamples were not judged, our cut-off", MinPercentileResamples)
+		}
+		fmt.Fprintf(b, "For %s %s (%s). ", joinList(undetermined), who, why)
 	}
+}
+
+// fewResamples tells whether some difference from the base extent was
+// not judged for too few formed resamples.
+func (s *Sensitivity) fewResamples() bool {
+	for _, mv := range s.ModelVerdicts {
+		for _, d := range mv.Diffs {
+			if d.Defined && d.Position == positionTooFewResamples {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // aucAnswer answers the reviewer's question for AUC in one sentence:

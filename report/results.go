@@ -458,6 +458,9 @@ type Paired struct {
 	// TestSetShift is how much the change of test set moved the score:
 	// (A on its own points - B on its own points) - Diff.
 	TestSetShift float64 `json:"test_set_shift"`
+	// NotJudged says why a defined difference is reported but not judged
+	// (NotJudgedReason); absent when it is judged.
+	NotJudged string `json:"not_judged_reason,omitempty"`
 }
 
 // BootstrapReadable tells whether the published half-size bootstrap of pr,
@@ -472,10 +475,54 @@ func BootstrapReadable(pr PartialROC, n int) bool {
 	return pr.Iterations-pr.NotFormed >= 2 && n >= MinPairedPoints
 }
 
-// Judged tells whether p rests on enough common test points to be judged
-// (a verdict, a ranking, a reading against a null): MinPairedPoints or
-// more. Fewer are reported, not judged.
-func (p *Paired) Judged() bool { return p.CommonPoints >= MinPairedPoints }
+// Judged tells whether p rests on enough to be judged (a verdict, a
+// ranking, a reading against a null): MinPairedPoints or more common test
+// points and, for an interval from the paired resamples, at least
+// MinPercentileResamples resamples that formed the difference. Less is
+// reported, not judged (NotJudgedReason says why).
+func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
+
+// notJudgedKind is positionTooFew when p rests on fewer than
+// MinPairedPoints common test points, positionTooFewResamples when its
+// percentile interval comes from fewer than MinPercentileResamples formed
+// resamples, "" when p is judged. Too few points is said first: it is
+// the reason whatever the resamples.
+func (p *Paired) notJudgedKind() string {
+	switch {
+	case p.CommonPoints < MinPairedPoints:
+		return positionTooFew
+	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
+		return positionTooFewResamples
+	}
+	return ""
+}
+
+// Formed is the number of paired resamples that formed the difference
+// (Resamples - NotFormed).
+func (p *Paired) Formed() int { return p.Resamples - p.NotFormed }
+
+// NotJudgedReason says why a defined p is reported but not judged, as
+// results.json's not_judged_reason and the report give it, or "" when it
+// is judged (or undefined: nothing to judge).
+func (p *Paired) NotJudgedReason() string {
+	if !p.Defined {
+		return ""
+	}
+	return notJudgedReason(p.notJudgedKind(), p.CommonPoints, p.Formed())
+}
+
+// notJudgedReason words a not-judged kind (positionTooFew,
+// positionTooFewResamples) for a difference on common test points
+// from formed resamples; "" for any other kind.
+func notJudgedReason(kind string, common, formed int) string {
+	switch kind {
+	case positionTooFew:
+		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, MinPairedPoints)
+	case positionTooFewResamples:
+		return fmt.Sprintf("too few resamples: %d formed, our cut-off %d", formed, MinPercentileResamples)
+	}
+	return ""
+}
 
 // MetricKeyPartialROC, MetricKeyOmission: the MetricInfo keys of a partial
 // ROC ratio at E and of an omission rate at a threshold (value used for

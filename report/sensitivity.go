@@ -34,8 +34,10 @@ const (
 	// MinPercentileResamples: with fewer resamples than this a 2.5th and
 	// a 97.5th percentile do not lie inside the resampled values (1/0.025
 	// = 40; type 7 interpolates them toward the most extreme ones), so
-	// the run warns that the percentile intervals, and what is read from
-	// them, are not reliable (our cut-off).
+	// the run warns, and a paired difference whose percentile interval
+	// comes from fewer formed resamples is reported but not judged (our
+	// cut-off): its position is "too_few_resamples" and its reading
+	// ReadingTooFewResamples.
 	MinPercentileResamples = 40
 	// KmPerDegree is the length of one degree of latitude used to turn
 	// geographic cell widths into km (approximation: 40,075 km / 360 at the
@@ -242,9 +244,17 @@ type ExtentDifference struct {
 	TestSetShift float64 `json:"test_set_shift"`
 	// Position of the interval against -tolerance..+tolerance: "inside",
 	// "outside" (wholly beyond) or "overlapping"; "too_few" when the
-	// difference rests on fewer than MinPairedPoints test points (not
-	// judged; an exact difference always is).
+	// difference rests on fewer than MinPairedPoints test points, and
+	// "too_few_resamples" when its percentile interval comes from fewer
+	// than MinPercentileResamples formed resamples (both not judged; an
+	// exact difference always is).
 	Position string `json:"position"`
+	// NotJudged says why a difference is not judged (Paired.NotJudgedReason);
+	// absent when it is judged.
+	NotJudged string `json:"not_judged_reason,omitempty"`
+	// nFormed is the number of resamples that formed a paired_resamples
+	// difference (Paired.Formed), for the sentences.
+	nFormed int
 }
 
 // ModelVerdict is the equivalence judgement of one metric for one model

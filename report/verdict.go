@@ -39,8 +39,32 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 }
 
 // positionTooFew is the position of a difference on fewer than
-// MinPairedPoints common test points: reported, not judged.
-const positionTooFew = "too_few"
+// MinPairedPoints common test points, positionTooFewResamples that of a
+// difference whose percentile interval comes from fewer than
+// MinPercentileResamples formed resamples: reported, not judged. The
+// same words are the readings ReadingTooFew and ReadingTooFewResamples.
+const (
+	positionTooFew          = "too_few"
+	positionTooFewResamples = "too_few_resamples"
+)
+
+// notJudgedPosition tells whether pos (an ExtentDifference position or a
+// NullGap reading) marks a difference reported but not judged.
+func notJudgedPosition(pos string) bool {
+	return pos == positionTooFew || pos == positionTooFewResamples
+}
+
+// notJudged tells whether d is defined but not judged.
+func (d ExtentDifference) notJudged() bool { return d.Defined && notJudgedPosition(d.Position) }
+
+// why says why d is not judged: NotJudged, or its words from the
+// position when NotJudged is not filled (a difference made by hand).
+func (d ExtentDifference) why() string {
+	if d.NotJudged != "" || !d.notJudged() {
+		return d.NotJudged
+	}
+	return notJudgedReason(d.Position, d.CommonPoints, d.nFormed)
+}
 
 // position places the interval lo..hi against -tol..+tol.
 func position(lo, hi, tol float64) string {
@@ -80,15 +104,15 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	if p == nil {
 		return d
 	}
-	d.CommonPoints, d.Method = p.CommonPoints, p.Method
+	d.CommonPoints, d.Method, d.nFormed = p.CommonPoints, p.Method, p.Formed()
 	if !p.Defined {
 		return d
 	}
 	d.Defined = true
 	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
 	d.Position = position(d.Low, d.High, m.Tolerance)
-	if !p.Judged() {
-		d.Position = positionTooFew
+	if k := p.notJudgedKind(); k != "" {
+		d.Position, d.NotJudged = k, p.NotJudgedReason()
 	}
 	return d
 }
@@ -170,7 +194,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return
 	}
-	if outside > 0 && mv.Diffs[mv.Largest].Position == positionTooFew {
+	if outside > 0 && mv.Diffs[mv.Largest].notJudged() {
 		// An extent-sensitive verdict rests on the judged differences:
 		// name the largest of those, not one on too few test points
 		// (listed as not judged after it).
@@ -218,15 +242,15 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 				name, a.base, tol, straddle, notOn, tooFewText(mv.Diffs))
 			break
 		}
-		mv.Sentence = fmt.Sprintf("%s is undetermined: too few test points to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
-			name, tol, a.base, notOn, tooFewText(mv.Diffs))
+		mv.Sentence = fmt.Sprintf("%s is undetermined: %s to tell whether it moves by more than %s, although every difference from %s is 0.%s%s",
+			name, notJudgedWhy(mv.Diffs), tol, a.base, notOn, tooFewText(mv.Diffs))
 	default:
 		// Undetermined because an interval straddles the tolerance (the
 		// paired intervals are too wide, whatever the number of test
 		// points), or only because some differences rest on too few
 		// common test points to be judged.
 		straddle := straddleText(mv.Diffs, big, m.Tolerance)
-		why := "too few common test points to tell"
+		why := notJudgedWhy(mv.Diffs) + " to tell"
 		if straddle != "" {
 			why = "the paired intervals are too wide to tell"
 		}
@@ -254,6 +278,10 @@ func toleranceText(m MetricInfo) string {
 func differenceText(d ExtentDifference, tol float64) string {
 	if d.Method == "exact" {
 		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
+	}
+	if d.notJudged() {
+		// A description only: its interval is no basis for inference.
+		return fmt.Sprintf("%s on %s, not judged (%s)", signed3(d.Diff), d.Extent, d.why())
 	}
 	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
 }
@@ -314,19 +342,55 @@ func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) stri
 	return out
 }
 
-// tooFewText names the differences left unjudged for resting on fewer
-// than MinPairedPoints test points, or "".
+// tooFewText names the differences left unjudged, for resting on fewer
+// than MinPairedPoints test points (with their common test points) or on
+// fewer than MinPercentileResamples formed resamples (with the formed
+// resamples), or "".
 func tooFewText(ds []ExtentDifference) string {
-	var few []string
+	var few, fewB, fewBIDs []string
+	formed := map[int]bool{}
 	for _, d := range ds {
-		if d.Position == positionTooFew {
+		switch {
+		case !d.Defined:
+		case d.Position == positionTooFew:
 			few = append(few, fmt.Sprintf("%s (%d)", d.Extent, d.CommonPoints))
+		case d.Position == positionTooFewResamples:
+			fewB = append(fewB, fmt.Sprintf("%s (%d)", d.Extent, d.nFormed))
+			fewBIDs = append(fewBIDs, d.Extent)
+			formed[d.nFormed] = true
 		}
 	}
-	if len(few) == 0 {
-		return ""
+	out := ""
+	if len(few) > 0 {
+		out += fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
 	}
-	return fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
+	switch {
+	case len(fewB) > 1 && len(formed) == 1:
+		// One count for all (--iterations below the cut-off): say it once.
+		for n := range formed {
+			out += fmt.Sprintf(" Not judged, on fewer than %d formed resamples (our cut-off; %d formed on each): %s.", MinPercentileResamples, n, joinList(fewBIDs))
+		}
+	case len(fewB) > 0:
+		out += fmt.Sprintf(" Not judged, on fewer than %d formed resamples (our cut-off): %s.", MinPercentileResamples, joinList(fewB))
+	}
+	return out
+}
+
+// notJudgedWhy says what the differences of ds that are not judged lack:
+// "too few common test points", "too few resamples" or both.
+func notJudgedWhy(ds []ExtentDifference) string {
+	var pts, res bool
+	for _, d := range ds {
+		pts = pts || (d.Defined && d.Position == positionTooFew)
+		res = res || (d.Defined && d.Position == positionTooFewResamples)
+	}
+	switch {
+	case pts && res:
+		return "too few common test points or resamples"
+	case res:
+		return "too few resamples"
+	}
+	return "too few common test points"
 }
 
 // largestJudged is the index in ds of the defined difference with the
@@ -334,7 +398,7 @@ func tooFewText(ds []ExtentDifference) string {
 func largestJudged(ds []ExtentDifference) int {
 	k := -1
 	for i, d := range ds {
-		if !d.Defined || d.Position == positionTooFew {
+		if !d.Defined || d.notJudged() {
 			continue
 		}
 		if k < 0 || math.Abs(d.Diff) > math.Abs(ds[k].Diff) {
@@ -442,17 +506,21 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	for i, ma := range a.models {
 		for _, mb := range a.models[i+1:] {
 			r := ModelRanking{Metric: m.Key, Model: ma, Other: mb, Diffs: []ExtentDifference{}}
-			tooFew := 0
+			tooFew, tooFewB := 0, 0
 			for _, e := range a.extents {
 				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
 					continue
 				}
 				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
-				if d.Position == positionTooFew {
+				switch {
+				case !d.Defined:
+				case d.Position == positionTooFew:
 					tooFew++
+				case d.Position == positionTooFewResamples:
+					tooFewB++
 				}
-				if !d.Defined || d.Position == positionTooFew {
+				if !d.Defined || d.notJudged() {
 					continue
 				}
 				r.Extents++
@@ -470,25 +538,49 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				}
 			}
 			switch {
-			case r.Extents == 0 && tooFew > 0:
+			case r.Extents == 0 && tooFew > 0 && tooFewB == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, MinPairedPoints)
+			case r.Extents == 0 && tooFewB > 0:
+				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB))
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			case r.identical():
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
-				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
-				}
+				r.Sentence += notCountedText(tooFew, tooFewB)
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
-				if tooFew > 0 {
-					r.Sentence += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
-				}
+				r.Sentence += notCountedText(tooFew, tooFewB)
 			}
 			out = append(out, r)
 		}
+	}
+	return out
+}
+
+// notCountedText says on how many extents a model comparison was not
+// judged: tooFew where the models share fewer than MinPairedPoints test
+// points, tooFewB where the difference's interval comes from fewer than
+// MinPercentileResamples formed resamples; "" when on none.
+func notCountedText(tooFew, tooFewB int) string {
+	out := ""
+	if tooFew > 0 {
+		out += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
+	}
+	if tooFewB > 0 {
+		out += fmt.Sprintf(" Not counted: %d extent%s where the difference rests on fewer than %d formed resamples (our cut-off).", tooFewB, Plural(tooFewB), MinPercentileResamples)
+	}
+	return out
+}
+
+// notComparedWhy says why two models are compared on no extent, some
+// differences being on too few common test points (tooFew of them) and
+// the others from too few formed resamples (tooFewB).
+func notComparedWhy(tooFew, tooFewB int) string {
+	out := fmt.Sprintf("the difference rests on fewer than %d formed resamples on %d extent%s (our cut-off)", MinPercentileResamples, tooFewB, Plural(tooFewB))
+	if tooFew > 0 {
+		out = fmt.Sprintf("they share fewer than %d test points on %d extent%s and ", MinPairedPoints, tooFew, Plural(tooFew)) + out
 	}
 	return out
 }
@@ -503,7 +595,7 @@ func (rk ModelRanking) identical() bool {
 	}
 	n := 0
 	for _, d := range rk.Diffs {
-		if !d.Defined || d.Position == positionTooFew {
+		if !d.Defined || d.notJudged() {
 			continue
 		}
 		if d.Diff != 0 || d.Low != 0 || d.High != 0 {
