@@ -10,8 +10,9 @@ import (
 // partial ROC ratio gave, on an extent of one test point, an interval of
 // zero width and a P printed "< 0.005" (every resample is that point: an
 // audit of edge cases), a test the data cannot support. On fewer than MinPairedPoints
-// test points (or fewer than 2 resamples formed) the report gives the
-// full-sample ratio and the resamples' mean, without percentiles or P.
+// test points (or fewer than MinPercentileResamples resamples formed) the
+// report gives the full-sample ratio and the resamples' mean, without
+// percentiles or P.
 func TestBootstrapTooFewPoints(t *testing.T) {
 	cases := []struct {
 		n, iterations, notFormed int
@@ -22,7 +23,11 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 		{MinPairedPoints - 1, 200, 0, false},
 		{MinPairedPoints, 200, 0, true},
 		{90, 1, 0, false},
-		{90, 2, 0, true},
+		{90, 2, 0, false},
+		{90, MinPercentileResamples - 1, 0, false},
+		{90, MinPercentileResamples, 0, true},
+		{90, 200, 200 - MinPercentileResamples + 1, false},
+		{90, 200, 200 - MinPercentileResamples, true},
 		{90, 200, 199, false},
 	}
 	for _, c := range cases {

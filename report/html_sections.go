@@ -473,7 +473,7 @@ func scoresSection(r *Results) scoresView {
 				// Too few test points (or resamples) for an interval
 				// or a test: the mean only.
 				row = append(row, full, nc(pr.RatioMean, 3), dash, dash)
-				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the paired differences), or where fewer than 2 resamples formed a ratio, the percentiles and P are not given (–): resamples of so few records are no basis for an interval or a test.", MinPairedPoints)
+				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the paired differences), or where fewer than %d resamples formed a ratio (our cut-off, as for the paired differences), the percentiles and P are not given (–): resamples of so few records, or so few resamples, are no basis for an interval or a test.", MinPairedPoints, MinPercentileResamples)
 			} else {
 				row = append(row, full, nc(pr.RatioMean, 3),
 					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},

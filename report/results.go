@@ -464,15 +464,18 @@ type Paired struct {
 }
 
 // BootstrapReadable tells whether the published half-size bootstrap of pr,
-// on an extent of n test points, gives an interval and a P: at least two
-// of its resamples formed a ratio and n is at least MinPairedPoints (the
-// cut-off of the paired differences). Each resample holds a share of
-// the n points, so on fewer it is a handful of them (with one test point
-// every resample is that point: an interval of zero width and a P of 0,
-// printed "< 1/B"), no basis for an interval or a test. The full-sample
-// ratio and the resamples' mean are given either way.
+// on an extent of n test points, gives an interval and a P: at least
+// MinPercentileResamples of its resamples formed a ratio (fewer put no
+// value below the 2.5th or above the 97.5th percentile, and bound P below
+// by 1/B, as for the paired differences) and n is at least
+// MinPairedPoints (the cut-off of the paired differences). Each resample
+// holds a share of the n points, so on fewer it is a handful of them
+// (with one test point every resample is that point: an interval of zero
+// width and a P of 0, printed "< 1/B"), no basis for an interval or a
+// test. The full-sample ratio and the resamples' mean are given either
+// way; results.json keeps every number.
 func BootstrapReadable(pr PartialROC, n int) bool {
-	return pr.Iterations-pr.NotFormed >= 2 && n >= MinPairedPoints
+	return pr.Iterations-pr.NotFormed >= MinPercentileResamples && n >= MinPairedPoints
 }
 
 // Judged tells whether p rests on enough to be judged (a verdict, a

@@ -43,7 +43,7 @@ func (s *Study) draws() metrics.Draws {
 func (s *Study) paired() error {
 	s.res.Paired = []report.Paired{}
 	if b := s.o.Iterations; b < report.MinPercentileResamples {
-		s.warn(fmt.Sprintf("--iterations %d: the 95%% intervals of the paired differences of the partial ROC ratio, the omission rates and the Boyce index, and the published partial ROC bootstrap's interval and P, come from %d resample%s; with fewer than %d a 2.5th and a 97.5th percentile do not lie inside the resampled values (our cut-off), so those differences are reported but not judged (no verdict, model comparison or reading against a null is taken from them; results.json gives not_judged_reason) and the bootstrap's interval and P are not reliable: use --iterations 1000 (the default) for inference (the AUC's intervals come from the placements and do not depend on it)",
+		s.warn(fmt.Sprintf("--iterations %d: the 95%% intervals of the paired differences of the partial ROC ratio, the omission rates and the Boyce index, and the published partial ROC bootstrap's interval and P, come from %d resample%s; with fewer than %d a 2.5th and a 97.5th percentile do not lie inside the resampled values (our cut-off), so those differences are reported but not judged (no verdict, model comparison or reading against a null is taken from them; results.json gives not_judged_reason) and the bootstrap's interval and P are not given in the report or scores.csv (results.json keeps them): use --iterations 1000 (the default) for inference (the AUC's intervals come from the placements and do not depend on it)",
 			b, b, report.Plural(b), report.MinPercentileResamples))
 	}
 	jobs := s.pairJobs()

@@ -101,9 +101,10 @@ func TestScoresCSV(t *testing.T) {
 // 1 - E crossing falls among tied test points in every resample), the
 // resamples' mean, percentiles and P do not exist, and the table leaves
 // their rows out rather than write 0 (a P of 0 reads as "< 1/B"); with
-// one formed resample only the mean is written (the percentiles and P of
-// a single resample are no interval or test: report.BootstrapReadable),
-// with two or more the four rows. The values are the fields' own, copied.
+// fewer than report.MinPercentileResamples formed only the mean is
+// written (the percentiles and P of so few resamples are no interval or
+// test: report.BootstrapReadable), with that many or more the four rows.
+// The values are the fields' own, copied.
 func TestScoresCSVUnformedResamples(t *testing.T) {
 	for _, c := range []struct {
 		name      string
@@ -116,7 +117,10 @@ func TestScoresCSVUnformedResamples(t *testing.T) {
 		{"undefined, one formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.2, CIHigh: 1.2, PValue: 0, Iterations: 500, NotFormed: 499},
 			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean"},
 			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2}},
-		{"undefined, some formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 498},
+		{"undefined, too few formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples + 1},
+			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean"},
+			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2}},
+		{"undefined, some formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples},
 			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean", "partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"},
 			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2, "partial_roc_resample_p2_5": 1.1, "partial_roc_resample_p97_5": 1.4, "partial_roc_p_value": 0.02}},
 		{"defined, all formed, P 0", report.PartialROC{E: 0.05, Defined: true, Ratio: 1.3, RatioMean: 1.25, CILow: 1.1, CIHigh: 1.5, PValue: 0, Iterations: 500},
