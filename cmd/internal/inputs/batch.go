@@ -322,7 +322,7 @@ func (p *batchParser) mapping(st *Study, m *yaml.Node, study string, skip string
 func (p *batchParser) parseYAML(data []byte) {
 	var doc yaml.Node
 	if err := yaml.Unmarshal(data, &doc); err != nil {
-		line, msg := yamlSyntax(err)
+		line, msg := yamlSyntax(err, data)
 		p.add(line, "", "", fmt.Errorf("%w: not valid YAML%s; indent with spaces (not tabs) and quote values that contain ': '", ErrBatchSyntax, msg))
 		return
 	}
@@ -435,7 +435,7 @@ func (p *batchParser) parseCSV(data []byte) {
 	if lines > 0 {
 		var doc yaml.Node
 		if err := yaml.Unmarshal(block.Bytes(), &doc); err != nil {
-			line, msg := yamlSyntax(err)
+			line, msg := yamlSyntax(err, block.Bytes())
 			p.add(line, "", "", fmt.Errorf("%w: the shared settings (the '#' lines at the top) are not valid YAML%s; write one study key per line, for example\n    # iterations: 1000", ErrBatchSyntax, msg))
 		} else if root := deref(&doc); root.Kind == yaml.DocumentNode && len(root.Content) > 0 {
 			m := deref(root.Content[0])
@@ -557,15 +557,12 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 	return cols
 }
 
-// yamlSyntax returns a YAML reader error's message without its "yaml:
-// line N:" prefix, saying "near line N" instead: the reader's line can be
-// one early (see syntaxError), so no exact line is claimed (the returned
-// line is 0).
-func yamlSyntax(err error) (int, string) {
-	near := ""
-	if m := yamlLineRE.FindStringSubmatch(err.Error()); m != nil {
-		near = " near line " + m[1]
-	}
+// yamlSyntax returns the message of a YAML reader error on data without
+// its "yaml: line N:" prefix, saying "near line N" instead (yamlNear): the
+// reader's line can be one early (see syntaxError), so no exact line is
+// claimed (the returned line is 0).
+func yamlSyntax(err error, data []byte) (int, string) {
+	near := yamlNear(err, data, true)
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	return 0, near + ": " + yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
 }

@@ -135,19 +135,23 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 	serr := func(line int, key string, err error) error {
 		return &StudyError{File: name, Line: line, Key: key, Err: err}
 	}
-	dec := yaml.NewDecoder(r)
+	data, err := io.ReadAll(r)
+	if err != nil {
+		return nil, fmt.Errorf("inputs: cannot read %s: %w", name, err)
+	}
+	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node
 	st := &Study{}
 	if err := dec.Decode(&doc); err != nil {
 		if err == io.EOF {
 			return st, nil // empty file: nothing set
 		}
-		return nil, syntaxError(name, err)
+		return nil, syntaxError(name, err, data, true)
 	}
 	var second yaml.Node
 	if err := dec.Decode(&second); err != io.EOF {
 		if err != nil {
-			return nil, syntaxError(name, err)
+			return nil, syntaxError(name, err, data, false)
 		}
 		return nil, serr(second.Line, "", fmt.Errorf("%w: a second YAML document starts here; "+
 			"a study file holds one mapping: remove the '---' line and what follows, or merge the two", ErrStudySyntax))
@@ -224,14 +228,12 @@ func (e *lineErr) Unwrap() error { return e.err }
 
 var yamlLineRE = regexp.MustCompile(`line (\d+)`)
 
-// syntaxError wraps an error of the YAML reader. The reader's line numbers
-// can be one line early, so the line is given as "near line N" in the text
-// and StudyError.Line is left 0.
-func syntaxError(name string, err error) error {
-	near := ""
-	if m := yamlLineRE.FindStringSubmatch(err.Error()); m != nil {
-		near = " near line " + m[1]
-	}
+// syntaxError wraps an error of the YAML reader on data, the study file's
+// text (first: in its first YAML document). The reader's line numbers can
+// be one line early, so the line is given as "near line N" in the text
+// (yamlNear) and StudyError.Line is left 0.
+func syntaxError(name string, err error, data []byte, first bool) error {
+	near := yamlNear(err, data, first)
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	msg = yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
 	return &StudyError{File: name, Err: fmt.Errorf("%w%s: %s; write one setting per line as key: value, "+

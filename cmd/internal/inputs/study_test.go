@@ -177,7 +177,7 @@ func TestParseStudyErrors(t *testing.T) {
 		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
 		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
 		{"syntax error tab", "iterations: 10\n\tseed: 3\n", ErrStudySyntax, 0, "", []string{"near line 2", "spaces (not tabs)"}},
-		{"syntax error without line", "a: b: c\n", ErrStudySyntax, 0, "", []string{"a second ': ' on one line", "key: value"}},
+		{"syntax error on line 1", "a: b: c\n", ErrStudySyntax, 0, "", []string{"near line 1:", "a second ': ' on one line", "key: value"}},
 		{"syntax error unclosed", "e: [1, 2\n", ErrStudySyntax, 0, "", []string{"key: value"}},
 		{"two documents", "seed: 1\n---\nseed: 2\n", ErrStudySyntax, 2, "", []string{"second YAML document", "'---'"}},
 		{"root is a list", "- seed: 1\n", ErrStudySyntax, 1, "", []string{"found a list", "iterations: 1000"}},

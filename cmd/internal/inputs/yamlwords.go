@@ -1,6 +1,10 @@
 package inputs
 
-import "regexp"
+import (
+	"regexp"
+	"strconv"
+	"unicode/utf8"
+)
 
 // yamlRewords are the YAML reader's problems (go.yaml.in/yaml/v3, its
 // "yaml: line N:" prefix already cut) in our words, tried in order; the
@@ -44,4 +48,57 @@ func yamlWords(msg string) string {
 		}
 	}
 	return "text that is not valid YAML"
+}
+
+// yamlNear says near which line of data a YAML reader error err is: the
+// "line N" it names. The reader names none when the problem is on the
+// first line (its marks count from 0 and 0 is left out), nor for a
+// character it refuses ("control characters are not allowed"), which it
+// finds before it counts lines: that one is looked up in data, and any
+// other error without a line is on line 1 when it is in the first
+// document (first). "" when the line is not known.
+func yamlNear(err error, data []byte, first bool) string {
+	if m := yamlLineRE.FindStringSubmatch(err.Error()); m != nil {
+		return " near line " + m[1]
+	}
+	if yamlControlRE.MatchString(err.Error()) {
+		if line := yamlControlLine(data); line > 0 {
+			return " near line " + strconv.Itoa(line)
+		}
+		return ""
+	}
+	if first {
+		return " near line 1"
+	}
+	return ""
+}
+
+var yamlControlRE = regexp.MustCompile(`control characters are not allowed`)
+
+// yamlControlLine returns the line of the first character of data that
+// the YAML reader refuses as a control character (go.yaml.in/yaml/v3's
+// readerc.go allows tab, line feed, carriage return, 0x20-0x7E, 0x85,
+// 0xA0-0xD7FF, 0xE000-0xFFFD and 0x10000-0x10FFFF), counting lines as
+// the reader does (a line feed, a carriage return alone or before a line
+// feed, U+0085, U+2028 and U+2029 end a line); 0 when there is none.
+func yamlControlLine(data []byte) int {
+	line := 1
+	for i := 0; i < len(data); {
+		r, n := utf8.DecodeRune(data[i:])
+		switch {
+		case r == utf8.RuneError && n <= 1:
+			return 0 // not UTF-8: the reader says so otherwise
+		case r == '\r':
+			if i+1 >= len(data) || data[i+1] != '\n' {
+				line++
+			}
+		case r == '\n', r == 0x85, r == 0x2028, r == 0x2029:
+			line++
+		case r == '\t', r >= 0x20 && r <= 0x7E, r >= 0xA0 && r <= 0xD7FF, r >= 0xE000 && r <= 0xFFFD, r >= 0x10000 && r <= 0x10FFFF:
+		default:
+			return line
+		}
+		i += n
+	}
+	return 0
 }

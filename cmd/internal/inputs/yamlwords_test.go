@@ -92,3 +92,46 @@ func TestYAMLWordsOfReader(t *testing.T) {
 		}
 	}
 }
+
+// TestYAMLSyntaxNamesLine: a YAML problem is named with its line also when
+// the YAML reader names none: one on the first line (the reader leaves out
+// its line 0) and a control character, which the reader refuses before it
+// counts lines. The expected lines are where each case writes its fault.
+func TestYAMLSyntaxNamesLine(t *testing.T) {
+	studies := []struct{ name, in, want string }{
+		{"second colon on line 1", "a: b: c\n", "near line 1:"},
+		{"control character on line 3", "iterations: 20\nseed: 3\nregion: \"a\x01b\"\n", "near line 3:"},
+		{"control character after Windows line ends", "seed: 1\r\niterations: 20\r\nregion: \"a\x0bb\"\r\n", "near line 3:"},
+		{"control character after carriage returns alone", "seed: 1\rregion: \"a\x7fb\"\r", "near line 2:"},
+		{"C1 control character on line 2", "seed: 1\nregion: \"a\u0090b\"\n", "near line 2:"},
+	}
+	for _, c := range studies {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ParseStudy(strings.NewReader(c.in), "s.yaml", "")
+			if err == nil {
+				t.Fatal("no error")
+			}
+			if !strings.Contains(err.Error(), c.want) {
+				t.Errorf("lacks %q: %s", c.want, err)
+			}
+		})
+	}
+	// A study table: its YAML form and its '#' lines (line 1 of the table).
+	dir := t.TempDir()
+	for name, body := range map[string]string{
+		"t.yaml": "studies: a: b\n",
+		"u.yaml": "settings:\n  seed: 1\n  region: \"a\x01b\"\nstudies: []\n",
+		"t.csv":  "# seed: a: b\nid,model,occurrences,region\na,m=m.tif,o.csv,r.gpkg\n",
+	} {
+		want := map[string]string{"t.yaml": "near line 1:", "u.yaml": "near line 3:", "t.csv": "near line 1:"}[name]
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(body), 0o644)
+		_, err := LoadBatch(p)
+		if err == nil {
+			t.Fatalf("%s: no error", name)
+		}
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("%s: lacks %q: %s", name, want, err)
+		}
+	}
+}
