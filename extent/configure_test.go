@@ -29,3 +29,31 @@ func TestConfigureCache(t *testing.T) {
 		})
 	}
 }
+
+// TestBlockCacheBytes: the block cache the memory estimate counts is the
+// one GDAL_CACHEMAX asks for, read as GDAL reads it (GDAL's configuration
+// options page, recalled from memory: below 100,000 MB, else bytes, "N%"
+// of the physical memory); unset, the BlockCacheMB that Configure sets.
+// The estimate used to count 64 MB whatever the setting.
+func TestBlockCacheBytes(t *testing.T) {
+	for _, tc := range []struct {
+		env      string
+		physical int64
+		want     int64
+	}{
+		{"", 1 << 30, BlockCacheMB << 20},
+		{"64", 1 << 30, 64 << 20},
+		{"99999", 1 << 30, 99999 << 20},
+		{"100000", 1 << 30, 100000},
+		{"268435456", 1 << 30, 268435456},
+		{"5%", 1 << 30, (1 << 30) / 20},
+		{"5%", 0, BlockCacheMB << 20},
+		{"lots", 1 << 30, BlockCacheMB << 20},
+		{"-3", 1 << 30, BlockCacheMB << 20},
+	} {
+		t.Setenv("GDAL_CACHEMAX", tc.env)
+		if got := BlockCacheBytes(tc.physical); got != tc.want {
+			t.Errorf("GDAL_CACHEMAX=%q, physical %d: %d bytes, want %d", tc.env, tc.physical, got, tc.want)
+		}
+	}
+}

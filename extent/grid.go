@@ -48,9 +48,37 @@ func Configure() {
 		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
 	}
 	if os.Getenv("GDAL_CACHEMAX") == "" {
-		os.Setenv("GDAL_CACHEMAX", "16")
+		os.Setenv("GDAL_CACHEMAX", strconv.Itoa(BlockCacheMB))
 	}
 	Register()
+}
+
+// BlockCacheMB is the size (MB) of GDAL's block cache that Configure sets
+// when GDAL_CACHEMAX is not set (see Configure).
+const BlockCacheMB = 16
+
+// BlockCacheBytes returns the size of GDAL's block cache that
+// GDAL_CACHEMAX asks for, read as GDAL reads it (its configuration
+// options page, recalled from memory): a number below 100,000 is in MB, a
+// larger one in bytes, "N%" is N percent of the physical memory (physical,
+// bytes; BlockCacheMB when that is not known). Unset or unreadable, it is
+// BlockCacheMB, what Configure sets.
+func BlockCacheBytes(physical int64) int64 {
+	v := strings.TrimSpace(os.Getenv("GDAL_CACHEMAX"))
+	if pct, ok := strings.CutSuffix(v, "%"); ok {
+		if p, err := strconv.ParseFloat(strings.TrimSpace(pct), 64); err == nil && p >= 0 && p <= 100 && physical > 0 {
+			return int64(p / 100 * float64(physical))
+		}
+		return BlockCacheMB << 20
+	}
+	n, err := strconv.ParseInt(v, 10, 64)
+	switch {
+	case err != nil || n < 0:
+		return BlockCacheMB << 20
+	case n < 100000:
+		return n << 20
+	}
+	return n
 }
 
 // Register makes GDAL's drivers available. It is safe to call many times

@@ -24,10 +24,6 @@ func (m memoryUse) Total() int64 {
 	return m.Runs + m.Valid + m.Accumulators + m.Blocks + m.Points + m.Resamples
 }
 
-// blockCache is GDAL's block cache as the run sets it when the user does
-// not (see the README's Memory note).
-const blockCache = 64 << 20
-
 // estimateMemory is the one place that estimates the memory of a run from
 // its size; a change to the pass or the family that changes what is held
 // in memory changes it here. Parts:
@@ -39,7 +35,8 @@ const blockCache = 64 << 20
 //	              + 1 + 4096) bins x 16 bytes (each member's, and the shared
 //	              sums of a block)
 //	blocks        workers x one block buffer of blockCells float64 values,
-//	              plus GDAL's 64 MB block cache, plus (added by checkMemory
+//	              plus GDAL's block cache (extent.BlockCacheBytes: 16 MB
+//	              unless GDAL_CACHEMAX says otherwise), plus (added by checkMemory
 //	              for a run that scores) the keptBlockBytes of blocks a
 //	              model's sampling keeps for its pass
 //	points        about 400 bytes per occurrence record (records, lists, results)
@@ -57,7 +54,7 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 		Runs:         int64(extents) * rows * 40,
 		Valid:        cells / 8,
 		Accumulators: int64(workers) * int64(extents+pass.MaxShared) * bins * 16,
-		Blocks:       int64(workers)*int64(blockCells)*8 + blockCache,
+		Blocks:       int64(workers)*int64(blockCells)*8 + extent.BlockCacheBytes(physicalMemory()),
 		Points:       400 * int64(points),
 	}
 }
@@ -99,24 +96,36 @@ func sortedUniqueNonZero(v []float64) map[float64]bool {
 // availableMemory returns the memory the run may use: the smaller of
 // MemAvailable (/proc/meminfo) and a cgroup limit, or 0 when unknown.
 func availableMemory() int64 {
-	var avail int64
-	if f, err := os.Open("/proc/meminfo"); err == nil {
-		sc := bufio.NewScanner(f)
-		for sc.Scan() {
-			if f := strings.Fields(sc.Text()); len(f) >= 2 && f[0] == "MemAvailable:" {
-				if kb, err := strconv.ParseInt(f[1], 10, 64); err == nil {
-					avail = kb * 1024
-				}
-			}
-		}
-		f.Close()
-	}
+	avail := meminfo("MemAvailable:")
 	if b, err := os.ReadFile("/sys/fs/cgroup/memory.max"); err == nil {
 		if lim, err := strconv.ParseInt(strings.TrimSpace(string(b)), 10, 64); err == nil && lim > 0 && (avail == 0 || lim < avail) {
 			avail = lim
 		}
 	}
 	return avail
+}
+
+// physicalMemory returns MemTotal (/proc/meminfo), or 0 when unknown:
+// what a GDAL_CACHEMAX given in percent is a share of.
+func physicalMemory() int64 { return meminfo("MemTotal:") }
+
+// meminfo returns the value of /proc/meminfo's line key ("MemTotal:") in
+// bytes, 0 when there is none.
+func meminfo(key string) int64 {
+	f, err := os.Open("/proc/meminfo")
+	if err != nil {
+		return 0
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		if f := strings.Fields(sc.Text()); len(f) >= 2 && f[0] == key {
+			if kb, err := strconv.ParseInt(f[1], 10, 64); err == nil {
+				return kb * 1024
+			}
+		}
+	}
+	return 0
 }
 
 // memoryShare is the share of the available memory a run may plan to use
