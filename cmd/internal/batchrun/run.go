@@ -148,7 +148,7 @@ const maxFailuresShown = 20
 // and with --only, as in a scheduler task's log, no summary lists them).
 func failedStudies(o *Options, studies []*study, errs []error, failed int) error {
 	var ids, lines []string
-	stale, damaged := 0, 0
+	stale, occupied, damaged := 0, 0, 0
 	for i, err := range errs {
 		if err == nil {
 			continue
@@ -156,9 +156,12 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 		var se *staleError
 		var de *damagedError
 		var ue *batch.UnreadableError
+		var ne *outdir.NotEmptyError
 		switch {
 		case errors.As(err, &se):
 			stale++
+		case errors.As(err, &ne):
+			occupied++ // its folder holds files but no completion marker
 		case errors.As(err, &de), errors.As(err, &ue):
 			damaged++ // the user's to fix first: see its line
 		}
@@ -174,14 +177,33 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 	if len(o.Only) == 0 {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
 	}
+	// What --force gets past: a stale study, or a folder that holds files
+	// but no completion marker (run --force replaces areasweep's files
+	// only).
+	var forced []string
+	if stale > 0 {
+		forced = append(forced, "made from other settings or inputs or with a damaged completion marker")
+	}
+	if occupied > 0 {
+		forced = append(forced, "whose folder holds files but no completion marker")
+	}
 	again := "running the same command again retries them"
 	switch {
 	case damaged == failed:
 		again = "each line says what to do"
 	case stale == failed:
 		again = "--force runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
-	case stale > 0 || damaged > 0:
-		again = "running the same command again retries them, but not those made from other settings or inputs or with a damaged completion marker (--force), or with a damaged results.json or an input that cannot be read (see their lines)"
+	case occupied == failed:
+		again = "--force runs them again (their folders hold files but no completion marker; it replaces areasweep's files only)"
+	case stale+occupied == failed:
+		again = "--force runs them again (they were made from other settings or inputs, their completion marker is damaged, or their folder holds files but no completion marker)"
+	case stale+occupied > 0:
+		again = "running the same command again retries them, but not those " + strings.Join(forced, ", or ") + " (--force)"
+		if damaged > 0 {
+			again += ", or with a damaged results.json or an input that cannot be read (see their lines)"
+		}
+	case damaged > 0:
+		again = "running the same command again retries them, but not those with a damaged results.json or an input that cannot be read (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).

@@ -172,6 +172,15 @@ func (d *Dir) foreign(names []string, staged string) []string {
 	return found
 }
 
+// NotEmptyError is the refusal of an --out that exists and holds files
+// without --force: only --force gets past it (a batch says so for the
+// studies it stops).
+type NotEmptyError struct{ Out string }
+
+func (e *NotEmptyError) Error() string {
+	return fmt.Sprintf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", e.Out)
+}
+
 // foreignError is the message for foreign files in a folder --force
 // would replace.
 func foreignError(out string, found []string) error {
@@ -219,7 +228,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
 		}
 		if len(visible(entries)) > 0 && !force {
-			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", out))
+			return nil, fault.BadInput(&NotEmptyError{Out: out})
 		}
 		for _, n := range []string{"figures", "inputs"} {
 			if n == "inputs" && !demo || shard {
