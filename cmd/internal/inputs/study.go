@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"areasweep/cmd/internal/settings"
 
@@ -599,7 +600,13 @@ func ParseNamedPath(s string) (name, path string, err error) {
 		return "", "", fmt.Errorf("%w: %s has no NAME before '='; %s", ErrNamedPath, shown(s), advice)
 	}
 	if !nameRE.MatchString(name) {
-		return "", "", fmt.Errorf("%w: the name %s in %s is not allowed; %s", ErrNamedPath, shown(name), shown(s), advice)
+		// The value itself is not repeated: every caller names it (a
+		// long one was quoted twice, whole and cut).
+		why := "holds a character other than letters, digits, '_', '-' or '.'"
+		if n := utf8.RuneCountInString(name); n > 40 {
+			why = fmt.Sprintf("is %d characters long", n)
+		}
+		return "", "", fmt.Errorf("%w: the name %s %s; %s", ErrNamedPath, shown(name), why, advice)
 	}
 	if path == "" {
 		return "", "", fmt.Errorf("%w: %q has no PATH after '='; %s", ErrNamedPath, s, advice)

@@ -384,11 +384,11 @@ func TestParseNamedPath(t *testing.T) {
 		{"spaces trimmed", "  m =  p.tif ", "m", "p.tif", ""},
 		{"40 characters", strings.Repeat("a", 40) + "=p", strings.Repeat("a", 40), "p", ""},
 		{"windows path", `m=C:\data\m.tif`, "m", `C:\data\m.tif`, ""},
-		{"41 characters", strings.Repeat("a", 41) + "=p", "", "", "is not allowed"},
+		{"41 characters", strings.Repeat("a", 41) + "=p", "", "", "is 41 characters long"},
 		{"no =", "m.tif", "", "", "has no '='"},
 		{"empty name", "=p.tif", "", "", "no NAME"},
 		{"empty path", "m= ", "", "", "no PATH"},
-		{"bad character", "m/n=p", "", "", `name "m/n"`},
+		{"bad character", "m/n=p", "", "", `name "m/n" holds a character other than`},
 		{"empty", "", "", "", "has no '='"},
 	}
 	for _, tc := range cases {
