@@ -437,7 +437,7 @@ func metricsCaption(r *Results) string {
 		// Where the reference sits on the area axis.
 		for _, e := range r.Extents {
 			if e.ID == s.BaseExtent {
-				c += fmt.Sprintf("%s, whose scores the Analysis takes differences from, is at %s km². ", upperFirst(referenceText(s, "the base extent, %s")), fmtArea(e.AreaKm2))
+				c += fmt.Sprintf("%s, whose scores the Analysis takes differences from, is at %s km². ", upperFirst(referenceName(s)), fmtArea(e.AreaKm2))
 			}
 		}
 	}

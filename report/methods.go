@@ -336,6 +336,16 @@ func referenceText(s *Sensitivity, format string) string {
 	return fmt.Sprintf("the reference extent %s%s", s.BaseExtent, why)
 }
 
+// referenceName is referenceText without the base extent's id, which is
+// its name already ("the base extent, base," read as two extents): "the
+// base extent", or the extent standing in for it, with why.
+func referenceName(s *Sensitivity) string {
+	if s.BaseExtent == vocab.BaseID {
+		return "the base extent"
+	}
+	return referenceText(s, "%s")
+}
+
 // referenceWord is "the base extent", or "the reference extent" when
 // another extent stands in for it (referenceText).
 func referenceWord(s *Sensitivity) string {
@@ -605,7 +615,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 			fmt.Fprintf(b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(b, " (%s, and %d other%s) %s", referenceText(s, "the base extent, %s"), n-1, Plural(n-1), areaRange(lo, hi))
+			fmt.Fprintf(b, " (%s and %d other%s) %s", referenceName(s), n-1, Plural(n-1), areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {
