@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"os"
+	"path/filepath"
 	"testing"
 	"time"
 )
@@ -15,6 +17,10 @@ func widenSample(t testing.TB, k int) *Results {
 	r := loadSample(t)
 	base := BaseExtent(extentIDs(r))
 	exts, scores, curves, paired := r.Extents, r.Scores, r.Curves, r.Paired
+	var masks []string
+	if r.Preview != nil {
+		masks = r.Preview.Masks
+	}
 	for c := 1; c < k; c++ {
 		name := func(id string) string {
 			if id == base {
@@ -22,12 +28,15 @@ func widenSample(t testing.TB, k int) *Results {
 			}
 			return fmt.Sprintf("%s_c%d", id, c)
 		}
-		for _, e := range exts {
+		for i, e := range exts {
 			if e.ID == base {
 				continue
 			}
 			e.ID, e.Chain, e.DuplicateOf = name(e.ID), "", ""
 			r.Extents = append(r.Extents, e)
+			if masks != nil {
+				r.Preview.Masks = append(r.Preview.Masks, masks[i])
+			}
 		}
 		for _, s := range scores {
 			if s.Extent != base {
@@ -73,6 +82,27 @@ func BenchmarkAnalyzeWide(b *testing.B) {
 				}
 			}
 		})
+	}
+}
+
+// BenchmarkLoadWide times Load (the shape walk, decoding, Validate) of
+// the sample run widened to 64 times its extents, written as a run
+// writes it (about 25 MB).
+func BenchmarkLoadWide(b *testing.B) {
+	data, err := widenSample(b, 64).Encode()
+	if err != nil {
+		b.Fatal(err)
+	}
+	path := filepath.Join(b.TempDir(), "results.json")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Load(path); err != nil {
+			b.Fatal(err)
+		}
 	}
 }
 
