@@ -87,7 +87,7 @@ func BenchmarkAnalyzeWide(b *testing.B) {
 
 // BenchmarkLoadWide times Load (the shape walk, decoding, Validate) of
 // the sample run widened to 64 times its extents, written as a run
-// writes it (about 25 MB).
+// writes it (about 30 MB).
 func BenchmarkLoadWide(b *testing.B) {
 	data, err := widenSample(b, 64).Encode()
 	if err != nil {
