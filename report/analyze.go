@@ -87,6 +87,7 @@ type analysis struct {
 	extents  []Extent // status "ok", family order
 	extIndex map[string]int
 	scores   map[[2]string]*Score // (model, extent) -> first score
+	paired   map[pairedKey]int    // -> index of the first such record in r.Paired
 	warnings []string
 	base     string // Sensitivity.BaseExtent
 }
@@ -135,7 +136,25 @@ func newAnalysis(r *Results) *analysis {
 		a.scores[k] = sc
 	}
 	a.metrics = buildMetrics(r)
+	// pairedFor is asked once per metric, model and extent pair: an
+	// index, not a scan of r.Paired each time (quadratic in the records,
+	// most of a large run's re-render).
+	a.paired = make(map[pairedKey]int, len(r.Paired))
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		k := pairedKey{p.Metric, p.Kind, p.Model, p.Extent, p.OtherModel, p.OtherExtent}
+		if _, dup := a.paired[k]; !dup {
+			a.paired[k] = i
+		}
+	}
 	return a
+}
+
+// pairedKey is what pairedFor looks a Paired record up by.
+type pairedKey struct {
+	metric                         string
+	kind                           PairKind
+	model, ext, other, otherExtent string
 }
 
 // score returns the usable score of model on extent (ok extent, scored).

@@ -30,14 +30,29 @@ import (
 // required there: unscoredRead). Unknown keys are let through. Structural problems (a key twice,
 // a wrong kind, broken JSON, trailing text) are reported before a missing
 // field; among missing fields, the first in the file's order.
+//
+// The file is read by fastTokens; if it meets what it does not read as
+// json.Decoder would (broken JSON, above all), the walk is done again
+// with a json.Decoder, whose errors the messages are made from.
 func CheckShape(data []byte) error {
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.UseNumber()
-	w := &shapeWalker{dec: dec, data: data}
-	if _, err := w.walk("", reflect.TypeOf(Results{}), 0); err != nil {
+	if err := checkShape(data, newFastTokens(data)); err != errNotFast {
 		return err
 	}
-	if _, err := dec.Token(); err != io.EOF {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.UseNumber()
+	return checkShape(data, dec)
+}
+
+// checkShape is CheckShape reading the tokens of data from toks.
+func checkShape(data []byte, toks shapeTokens) error {
+	w := &shapeWalker{dec: toks, data: data, fields: map[reflect.Type]*shapeFields{}}
+	if _, err := w.walk(reflect.TypeOf(Results{}), 0); err != nil {
+		return err
+	}
+	if _, err := toks.Token(); err != io.EOF {
+		if err == errNotFast {
+			return err
+		}
 		return errors.New("more JSON follows the results object")
 	}
 	if w.missing != "" {
@@ -50,12 +65,90 @@ func CheckShape(data []byte) error {
 // and the README.
 const RequiredFieldsRule = "every field a run always writes must be there (fields it may leave out, such as an input's sidecars, the preview or an extent's sorting bias, are optional; the sensitivity analysis is recomputed, and an unscored entry of scores needs only model, extent, scored and area_km2)"
 
-// shapeWalker is CheckShape's state: the decoder and the first missing
-// field found (reported once the walk has found no other problem).
+// shapeWalker is CheckShape's state: the decoder, the first missing
+// field found (reported once the walk has found no other problem), the
+// path of the value being read and the fields of each struct type met.
 type shapeWalker struct {
-	dec     *json.Decoder
+	dec     shapeTokens
 	data    []byte // the file, for the line of a syntax error
 	missing string
+	// at is the path of the value being read, one step per member or
+	// element; its text (path) is made only for a message, not for every
+	// value of the file.
+	at []shapeStep
+	// fields holds each struct type's fields, found once per type rather
+	// than once per object of the file.
+	fields map[reflect.Type]*shapeFields
+}
+
+// shapeStep is a step of a path: a member's key, or a list element's
+// index.
+type shapeStep struct {
+	key   string
+	index int
+	elem  bool
+}
+
+// path is the text of the path of the value being read, e.g.
+// scores[4].auc ("" at the top level).
+func (w *shapeWalker) path() string {
+	var b strings.Builder
+	for _, s := range w.at {
+		switch {
+		case s.elem:
+			b.WriteByte('[')
+			b.WriteString(strconv.Itoa(s.index))
+			b.WriteByte(']')
+		case b.Len() > 0:
+			b.WriteByte('.')
+			b.WriteString(s.key)
+		default:
+			b.WriteString(s.key)
+		}
+	}
+	return b.String()
+}
+
+// shapeFields are the JSON fields of a struct type: for each name, its
+// type and whether a run always writes it (the last field of that name,
+// as encoding/json's tags would be read here), and the names in the
+// order declared.
+type shapeFields struct {
+	byName map[string]shapeField
+	order  []string
+}
+
+type shapeField struct {
+	t        reflect.Type
+	required bool
+	slot     int // the field's place among the names, for the names seen
+}
+
+// fieldsOf returns t's fields (t a struct type), found once per type.
+func (w *shapeWalker) fieldsOf(t reflect.Type) *shapeFields {
+	if fs, ok := w.fields[t]; ok {
+		return fs
+	}
+	fs := &shapeFields{byName: map[string]shapeField{}}
+	for i := 0; i < t.NumField(); i++ {
+		f := t.Field(i)
+		tag := f.Tag.Get("json")
+		name, opts, _ := strings.Cut(tag, ",")
+		if !f.IsExported() || name == "-" {
+			continue
+		}
+		if name == "" {
+			name = f.Name
+		}
+		slot := len(fs.byName)
+		if old, ok := fs.byName[name]; ok {
+			slot = old.slot
+		}
+		fs.byName[name] = shapeField{f.Type, !strings.Contains(","+opts+",", ",omitempty,"), slot}
+		fs.order = append(fs.order, name)
+	}
+	w.fields[t] = fs
+	return fs
 }
 
 // unscoredRead are the fields of an unscored score that the report reads
@@ -80,17 +173,17 @@ func shapePath(path string) string {
 	return cutShape(path)
 }
 
-// walk reads one value at path and checks it against t (nil: any). It
-// returns the value when it is a plain one (a string, number, bool or
-// null), nil for an object or a list.
-func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, error) {
+// walk reads one value at the path w.at and checks it against t (nil:
+// any). It returns the value when it is a plain one (a string, number,
+// bool or null), nil for an object or a list.
+func (w *shapeWalker) walk(t reflect.Type, depth int) (json.Token, error) {
 	dec := w.dec
 	if depth > maxShapeDepth {
-		return nil, fmt.Errorf("%s: lists and objects nested more than %d deep; a run writes at most a few levels", shapePath(path), maxShapeDepth)
+		return nil, fmt.Errorf("%s: lists and objects nested more than %d deep; a run writes at most a few levels", shapePath(w.path()), maxShapeDepth)
 	}
 	tok, err := dec.Token()
 	if err != nil {
-		return nil, w.jsonBroken(path, err)
+		return nil, w.jsonBroken(err)
 	}
 	for t != nil && t.Kind() == reflect.Pointer {
 		if tok == nil {
@@ -105,7 +198,7 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 		if t.Kind() == reflect.Slice {
 			return nil, nil // a nil list, as a run may write it
 		}
-		return nil, fmt.Errorf("%s is null; a run writes a value there", shapePath(path))
+		return nil, fmt.Errorf("%s is null; a run writes a value there", shapePath(w.path()))
 	case t.Kind() == reflect.Struct:
 		want = "an object"
 	case t.Kind() == reflect.Slice || t.Kind() == reflect.Array:
@@ -123,12 +216,12 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 	case json.Delim:
 		if v == '{' {
 			if want != "" && want != "an object" {
-				return nil, fmt.Errorf("%s holds an object; a run writes %s there", shapePath(path), want)
+				return nil, fmt.Errorf("%s holds an object; a run writes %s there", shapePath(w.path()), want)
 			}
-			return nil, w.object(path, t, depth)
+			return nil, w.object(t, depth)
 		}
 		if want != "" && want != "a list" {
-			return nil, fmt.Errorf("%s holds a list; a run writes %s there", shapePath(path), want)
+			return nil, fmt.Errorf("%s holds a list; a run writes %s there", shapePath(w.path()), want)
 		}
 		var elem reflect.Type
 		if t != nil {
@@ -136,37 +229,38 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 		}
 		n := 0
 		for ; dec.More(); n++ {
-			at := fmt.Sprintf("%s[%d]", path, n)
-			if _, err := w.walk(at, elem, depth+1); err != nil {
+			w.at = append(w.at, shapeStep{index: n, elem: true})
+			if _, err := w.walk(elem, depth+1); err != nil {
 				return nil, err
 			}
+			w.at = w.at[:len(w.at)-1]
 		}
 		if t != nil && t.Kind() == reflect.Array && n != t.Len() {
 			// A fixed-size list (the geotransform, the preview's
 			// bounds): decoding would fill the missing numbers with 0.
-			return nil, fmt.Errorf("%s holds %d values; a run writes %d there", shapePath(path), n, t.Len())
+			return nil, fmt.Errorf("%s holds %d values; a run writes %d there", shapePath(w.path()), n, t.Len())
 		}
-		return nil, w.closeShape(path)
+		return nil, w.closeShape()
 	case string:
 		if want != "" && want != "a string" {
-			return nil, fmt.Errorf("%s holds the string %q; a run writes %s there", shapePath(path), cutShape(v), want)
+			return nil, fmt.Errorf("%s holds the string %q; a run writes %s there", shapePath(w.path()), cutShape(v), want)
 		}
 	case bool:
 		if want != "" && want != "true or false" {
-			return nil, fmt.Errorf("%s holds %v; a run writes %s there", shapePath(path), v, want)
+			return nil, fmt.Errorf("%s holds %v; a run writes %s there", shapePath(w.path()), v, want)
 		}
 	case json.Number:
 		switch want {
 		case "", "a number":
 			if _, err := strconv.ParseFloat(string(v), 64); err != nil {
-				return nil, fmt.Errorf("%s: %s is out of range", shapePath(path), cutShape(string(v)))
+				return nil, fmt.Errorf("%s: %s is out of range", shapePath(w.path()), cutShape(string(v)))
 			}
 		case "a whole number":
 			if _, err := strconv.ParseInt(string(v), 10, 64); err != nil {
-				return nil, fmt.Errorf("%s holds %s; a run writes a whole number there", shapePath(path), cutShape(string(v)))
+				return nil, fmt.Errorf("%s holds %s; a run writes a whole number there", shapePath(w.path()), cutShape(string(v)))
 			}
 		default:
-			return nil, fmt.Errorf("%s holds the number %s; a run writes %s there", shapePath(path), cutShape(string(v)), want)
+			return nil, fmt.Errorf("%s holds the number %s; a run writes %s there", shapePath(w.path()), cutShape(string(v)), want)
 		}
 	}
 	return tok, nil
@@ -174,71 +268,77 @@ func (w *shapeWalker) walk(path string, t reflect.Type, depth int) (json.Token, 
 
 // object reads the members of an object after its '{' and, once it is
 // closed, notes the first required field it lacks (see CheckShape).
-func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
-	type field struct {
-		t        reflect.Type
-		required bool
-	}
-	fields := map[string]field{}
-	var order []string
+func (w *shapeWalker) object(t reflect.Type, depth int) error {
+	var fs *shapeFields
+	var seen []bool // by the slot of a field of t
 	if t != nil {
-		for i := 0; i < t.NumField(); i++ {
-			f := t.Field(i)
-			tag := f.Tag.Get("json")
-			name, opts, _ := strings.Cut(tag, ",")
-			if !f.IsExported() || name == "-" {
-				continue
-			}
-			if name == "" {
-				name = f.Name
-			}
-			fields[name] = field{f.Type, !strings.Contains(","+opts+",", ",omitempty,")}
-			order = append(order, name)
-		}
+		fs = w.fieldsOf(t)
+		seen = make([]bool, len(fs.byName))
 	}
-	seen := map[string]bool{}
-	plain := map[string]json.Token{} // a score's model, extent and scored
+	var seenOther map[string]bool        // keys that are no field of t
+	var model, extent, scored json.Token // a score's, for its message
 	for w.dec.More() {
 		tok, err := w.dec.Token()
 		if err != nil {
-			return w.jsonBroken(path, err)
+			return w.jsonBroken(err)
 		}
 		key := tok.(string)
-		at := key
-		if path != "" {
-			at = path + "." + key
+		w.at = append(w.at, shapeStep{key: key})
+		var f shapeField
+		known := false
+		if fs != nil {
+			f, known = fs.byName[key]
 		}
-		if seen[key] {
-			return fmt.Errorf("%s is given twice; keep one", cutShape(at))
+		twice := false
+		if known {
+			twice, seen[f.slot] = seen[f.slot], true
+		} else {
+			if seenOther == nil {
+				seenOther = map[string]bool{}
+			}
+			twice, seenOther[key] = seenOther[key], true
 		}
-		seen[key] = true
-		v, err := w.walk(at, fields[key].t, depth+1)
+		if twice {
+			return fmt.Errorf("%s is given twice; keep one", cutShape(w.path()))
+		}
+		v, err := w.walk(f.t, depth+1)
 		if err != nil {
 			return err
 		}
-		if key == "model" || key == "extent" || key == "scored" {
-			plain[key] = v
+		w.at = w.at[:len(w.at)-1]
+		switch key {
+		case "model":
+			model = v
+		case "extent":
+			extent = v
+		case "scored":
+			scored = v
 		}
 	}
-	if err := w.closeShape(path); err != nil {
+	if err := w.closeShape(); err != nil {
 		return err
 	}
-	if w.missing != "" || t == nil || path == recomputedField || strings.HasPrefix(path, recomputedField+".") {
+	if w.missing != "" || t == nil {
 		return nil
 	}
 	isScore := t == reflect.TypeOf(Score{})
-	unscored := isScore && plain["scored"] != true
-	for _, name := range order {
-		if !fields[name].required || seen[name] || (unscored && !unscoredRead[name]) {
+	unscored := isScore && scored != true
+	for _, name := range fs.order {
+		f := fs.byName[name]
+		if !f.required || seen[f.slot] || (unscored && !unscoredRead[name]) {
 			continue
+		}
+		path := w.path()
+		if path == recomputedField || strings.HasPrefix(path, recomputedField+".") {
+			return nil
 		}
 		at := name
 		if path != "" {
 			at = path + "." + name
 		}
 		w.missing = fmt.Sprintf("%s is missing", cutShape(at))
-		if m, e := plain["model"], plain["extent"]; isScore && m != nil && e != nil {
-			w.missing += fmt.Sprintf(" (model %s, extent %s)", cutShape(fmt.Sprint(m)), cutShape(fmt.Sprint(e)))
+		if isScore && model != nil && extent != nil {
+			w.missing += fmt.Sprintf(" (model %s, extent %s)", cutShape(fmt.Sprint(model)), cutShape(fmt.Sprint(extent)))
 		}
 		w.missing += "; a run always writes it"
 		return nil
@@ -250,21 +350,24 @@ func (w *shapeWalker) object(path string, t reflect.Type, depth int) error {
 // levels at most; our bound).
 const maxShapeDepth = 32
 
-// closeShape reads the ']' or '}' that ends the list or object at path.
-func (w *shapeWalker) closeShape(path string) error {
+// closeShape reads the ']' or '}' that ends the list or object at w.at.
+func (w *shapeWalker) closeShape() error {
 	if _, err := w.dec.Token(); err != nil {
-		return w.jsonBroken(path, err)
+		return w.jsonBroken(err)
 	}
 	return nil
 }
 
-// jsonBroken says where the JSON of a results file stops being JSON.
-// encoding/json's wording is put in ours (jsonSyntaxWords).
-func (w *shapeWalker) jsonBroken(path string, err error) error {
-	if err == io.EOF || errors.Is(err, io.ErrUnexpectedEOF) {
-		return fmt.Errorf("%s: the file is cut short there", shapePath(path))
+// jsonBroken says where the JSON of a results file stops being JSON (at
+// w.at). encoding/json's wording is put in ours (jsonSyntaxWords).
+func (w *shapeWalker) jsonBroken(err error) error {
+	if err == errNotFast {
+		return err // CheckShape walks again with a json.Decoder
 	}
-	return fmt.Errorf("%s: not valid JSON there (%s)", shapePath(path), jsonSyntaxWords(w.data, w.dec.InputOffset(), err))
+	if err == io.EOF || errors.Is(err, io.ErrUnexpectedEOF) {
+		return fmt.Errorf("%s: the file is cut short there", shapePath(w.path()))
+	}
+	return fmt.Errorf("%s: not valid JSON there (%s)", shapePath(w.path()), jsonSyntaxWords(w.data, w.dec.InputOffset(), err))
 }
 
 // cutShape shortens a quoted value to 60 characters.

@@ -11,11 +11,8 @@ import (
 // pairedFor returns the paired record of metric between (model, ext) and
 // (other, otherExt), or nil.
 func (a *analysis) pairedFor(metric string, kind PairKind, model, ext, other, otherExt string) *Paired {
-	for i := range a.r.Paired {
-		p := &a.r.Paired[i]
-		if p.Metric == metric && p.Kind == kind && p.Model == model && p.Extent == ext && p.OtherModel == other && p.OtherExtent == otherExt {
-			return p
-		}
+	if i, ok := a.paired[pairedKey{metric, kind, model, ext, other, otherExt}]; ok {
+		return &a.r.Paired[i] // the first such record, as a scan finds it
 	}
 	return nil
 }
