@@ -572,7 +572,7 @@ func Load(path string) (*Results, error) {
 // LoadWritten is Load for a file whose SHA-256 (hex) a run recorded as it
 // wrote it (a batch's completion marker): while the file still has that
 // checksum it holds exactly what a run wrote, so the walk of its shape
-// (CheckShape: about half the time of decoding) is skipped; the schema
+// (CheckShape: about twice the time of decoding) is skipped; the schema
 // version and the values are checked as by Load. Any other file gets
 // every check.
 func LoadWritten(path, sum string) (*Results, error) {

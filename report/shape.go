@@ -30,29 +30,14 @@ import (
 // required there: unscoredRead). Unknown keys are let through. Structural problems (a key twice,
 // a wrong kind, broken JSON, trailing text) are reported before a missing
 // field; among missing fields, the first in the file's order.
-//
-// The file is read by fastTokens; if it meets what it does not read as
-// json.Decoder would (broken JSON, above all), the walk is done again
-// with a json.Decoder, whose errors the messages are made from.
 func CheckShape(data []byte) error {
-	if err := checkShape(data, newFastTokens(data)); err != errNotFast {
-		return err
-	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
-	return checkShape(data, dec)
-}
-
-// checkShape is CheckShape reading the tokens of data from toks.
-func checkShape(data []byte, toks shapeTokens) error {
-	w := &shapeWalker{dec: toks, data: data, fields: map[reflect.Type]*shapeFields{}}
+	w := &shapeWalker{dec: dec, data: data, fields: map[reflect.Type]*shapeFields{}}
 	if _, err := w.walk(reflect.TypeOf(Results{}), 0); err != nil {
 		return err
 	}
-	if _, err := toks.Token(); err != io.EOF {
-		if err == errNotFast {
-			return err
-		}
+	if _, err := dec.Token(); err != io.EOF {
 		return errors.New("more JSON follows the results object")
 	}
 	if w.missing != "" {
@@ -69,7 +54,7 @@ const RequiredFieldsRule = "every field a run always writes must be there (field
 // field found (reported once the walk has found no other problem), the
 // path of the value being read and the fields of each struct type met.
 type shapeWalker struct {
-	dec     shapeTokens
+	dec     *json.Decoder
 	data    []byte // the file, for the line of a syntax error
 	missing string
 	// at is the path of the value being read, one step per member or
@@ -361,9 +346,6 @@ func (w *shapeWalker) closeShape() error {
 // jsonBroken says where the JSON of a results file stops being JSON (at
 // w.at). encoding/json's wording is put in ours (jsonSyntaxWords).
 func (w *shapeWalker) jsonBroken(err error) error {
-	if err == errNotFast {
-		return err // CheckShape walks again with a json.Decoder
-	}
 	if err == io.EOF || errors.Is(err, io.ErrUnexpectedEOF) {
 		return fmt.Errorf("%s: the file is cut short there", shapePath(w.path()))
 	}
