@@ -4,10 +4,7 @@ package pass
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
-	"strconv"
-	"strings"
 	"testing"
 
 	"areasweep/extent"
@@ -23,16 +20,7 @@ import (
 // the layout of the null's values at every occurrence with a histogram
 // floor, the sorting-bias tally, 2 workers; process CPU time per cell.
 func BenchmarkNullStudy(b *testing.B) {
-	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
-	if dir == "" {
-		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
-	}
-	extent.Configure()
-	g, err := extent.OpenGrid(filepath.Join(dir, "model1.tif"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer g.Close()
+	dir, g := benchStudy(b)
 	train := studyTrain(b, filepath.Join(dir, "occurrences.csv"))
 	all := studyAll(b, filepath.Join(dir, "occurrences.csv"))
 	lats, lons := make([]float64, len(train)), make([]float64, len(train))
@@ -85,23 +73,4 @@ func BenchmarkNullStudy(b *testing.B) {
 		}
 		b.ReportMetric(float64(cpu)/float64(b.N)/float64(g.Cells()), "cpu-ns/cell")
 	})
-}
-
-// studyAll reads every point of a sweepbench occurrence file.
-func studyAll(b *testing.B, path string) []extent.LonLat {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		b.Fatal(err)
-	}
-	var pts []extent.LonLat
-	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
-		f := strings.Split(line, ",")
-		lon, err1 := strconv.ParseFloat(f[0], 64)
-		lat, err2 := strconv.ParseFloat(f[1], 64)
-		if err1 != nil || err2 != nil {
-			b.Fatalf("%s: bad line %q", path, line)
-		}
-		pts = append(pts, extent.LonLat{Lon: lon, Lat: lat})
-	}
-	return pts
 }

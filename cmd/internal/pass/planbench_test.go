@@ -118,16 +118,7 @@ func BenchmarkPlan(b *testing.B) {
 // region.geojson, e.g. a sweepbench study; skipped when unset), with the
 // raster's 256 x 256 blocks, on one worker: CPU time per block.
 func BenchmarkPlanStudy(b *testing.B) {
-	dir := os.Getenv("AREASWEEP_BENCH_STUDY")
-	if dir == "" {
-		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
-	}
-	extent.Configure()
-	g, err := extent.OpenGrid(filepath.Join(dir, "model1.tif"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer g.Close()
+	dir, g := benchStudy(b)
 	train := studyTrain(b, filepath.Join(dir, "occurrences.csv"))
 	w, h, side := g.Width, g.Height, 256
 	for _, n := range []int{13, 60} {
@@ -163,14 +154,38 @@ func planBlocks(b *testing.B, fam *extent.Family, groups [][]int, w, h, side int
 	b.ReportMetric(float64(cpu)/float64(b.N*nx*ny), "cpu-ns/block")
 }
 
+// benchStudy opens the grid of the study named by AREASWEEP_BENCH_STUDY
+// (a folder of cmd/sweepbench holding model1.tif, occurrences.csv and
+// region.geojson), skipping b when it is unset.
+func benchStudy(b *testing.B) (dir string, g *extent.Grid) {
+	dir = os.Getenv("AREASWEEP_BENCH_STUDY")
+	if dir == "" {
+		b.Skip("AREASWEEP_BENCH_STUDY names no study folder")
+	}
+	extent.Configure()
+	g, err := extent.OpenGrid(filepath.Join(dir, "model1.tif"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Cleanup(func() { g.Close() })
+	return dir, g
+}
+
 // studyTrain reads the training points of a sweepbench occurrence file
 // (longitude,latitude,role with a header).
-func studyTrain(b *testing.B, path string) []extent.LonLat {
+func studyTrain(b *testing.B, path string) []extent.LonLat { return studyPoints(b, path, true) }
+
+// studyAll reads every point of a sweepbench occurrence file.
+func studyAll(b *testing.B, path string) []extent.LonLat { return studyPoints(b, path, false) }
+
+// studyPoints reads the points of a sweepbench occurrence file, only the
+// training points when trainOnly.
+func studyPoints(b *testing.B, path string, trainOnly bool) []extent.LonLat {
 	data, err := os.ReadFile(path)
 	if err != nil {
 		b.Fatal(err)
 	}
-	var train []extent.LonLat
+	var pts []extent.LonLat
 	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
 		f := strings.Split(line, ",")
 		if len(f) < 3 {
@@ -181,9 +196,9 @@ func studyTrain(b *testing.B, path string) []extent.LonLat {
 		if err1 != nil || err2 != nil {
 			b.Fatalf("%s: bad line %q", path, line)
 		}
-		if f[2] == "train" {
-			train = append(train, extent.LonLat{Lon: lon, Lat: lat})
+		if !trainOnly || f[2] == "train" {
+			pts = append(pts, extent.LonLat{Lon: lon, Lat: lat})
 		}
 	}
-	return train
+	return pts
 }
