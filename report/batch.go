@@ -115,7 +115,8 @@ type BatchRow struct {
 	EffectPoints int
 	EffectJudged bool
 	// EffectNotJudged says why the extent effect is not judged
-	// (ExtentDifference.NotJudged); "" when it is.
+	// (ExtentDifference.NotJudged, or noDifference when there is none);
+	// "" when it is.
 	EffectNotJudged string
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
 	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
@@ -156,9 +157,16 @@ type BatchVerdict struct {
 	Diff, Low, High             float64
 	Method                      string
 	// NotJudged says why that difference is not judged
-	// (ExtentDifference.NotJudged); "" when it is.
+	// (ExtentDifference.NotJudged, or noDifference when there is none);
+	// "" when it is.
 	NotJudged string
 }
+
+// noDifference is the not-judged reason of a model none of whose
+// differences from the base extent could be formed (on one common test
+// point, say): its verdict is undetermined and counted as not judged, and
+// the reason column says why instead of staying empty as for a judged one.
+const noDifference = "no paired difference from the base extent could be formed"
 
 // BatchCounts adds up the studies' own verdicts.
 type BatchCounts struct {
@@ -339,6 +347,8 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
+		} else {
+			row.EffectNotJudged = noDifference
 		}
 	}
 	for _, sc := range r.Scores {
@@ -450,6 +460,8 @@ func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
 	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 		d := mv.Diffs[mv.Largest]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
+	} else {
+		v.NotJudged = noDifference
 	}
 	return v
 }
