@@ -168,6 +168,16 @@ type BatchVerdict struct {
 // the reason column says why instead of staying empty as for a judged one.
 const noDifference = "no paired difference from the base extent could be formed"
 
+// noDifferenceWhy is noDifference, with the cause when the metric is
+// undefined on the base extent itself (a partial ROC ratio whose 1 - E
+// crossing falls among tied test points, say).
+func noDifferenceWhy(mv ModelVerdict) string {
+	if !mv.BaseDefined {
+		return noDifference + ": the metric is undefined on the base extent"
+	}
+	return noDifference
+}
+
 // BatchCounts adds up the studies' own verdicts.
 type BatchCounts struct {
 	// Studies given, with results, failed.
@@ -348,7 +358,7 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
 		} else {
-			row.EffectNotJudged = noDifference
+			row.EffectNotJudged = noDifferenceWhy(mv)
 		}
 	}
 	for _, sc := range r.Scores {
@@ -461,7 +471,7 @@ func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
 		d := mv.Diffs[mv.Largest]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
 	} else {
-		v.NotJudged = noDifference
+		v.NotJudged = noDifferenceWhy(mv)
 	}
 	return v
 }

@@ -664,17 +664,20 @@ func TestSummaryEdgeSentences(t *testing.T) {
 // the base extent could be formed (as on one common test point) is
 // undetermined and counted as not judged; its reason columns in
 // summary.csv and summary_verdicts.csv used to stay empty, as for a judged
-// model, so filtering on them missed it. They now say why. beta (judged,
-// from handBatch) keeps empty reasons.
+// model, so filtering on them missed it. They now say why, and that the
+// metric is undefined on the base extent when it is (undef, as a partial
+// ROC ratio can be). beta (judged, from handBatch) keeps empty reasons.
 func TestSummaryNoDifferenceReason(t *testing.T) {
 	studies := []StudyResult{handBatch()[1],
-		{ID: "lone", Report: "lone/report.html", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 1})}}
+		{ID: "lone", Report: "lone/report.html", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 1})},
+		{ID: "undef", Report: "undef/report.html", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 30})}}
+	studies[2].Results.Sensitivity.ModelVerdicts[0].BaseDefined = false
 	s, err := Summarize(studies)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if s.Counts.NotJudged != 1 {
-		t.Fatalf("not judged count %d, want 1 (lone)", s.Counts.NotJudged)
+	if s.Counts.NotJudged != 2 {
+		t.Fatalf("not judged count %d, want 2 (lone, undef)", s.Counts.NotJudged)
 	}
 	for _, c := range []struct {
 		name   string
@@ -693,7 +696,8 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 			t.Fatal(err)
 		}
 		col := slices.Index(recs[0], c.column)
-		want := map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed"}
+		want := map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed",
+			"undef": "no paired difference from the base extent could be formed: the metric is undefined on the base extent"}
 		for _, rec := range recs[1:] {
 			if got := rec[col]; got != want[rec[0]] {
 				t.Errorf("%s %s %s = %q, want %q", c.name, rec[0], c.column, got, want[rec[0]])
