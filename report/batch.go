@@ -115,7 +115,8 @@ type BatchRow struct {
 	EffectPoints int
 	EffectJudged bool
 	// EffectNotJudged says why the extent effect is not judged
-	// (ExtentDifference.NotJudged); "" when it is.
+	// (ExtentDifference.NotJudged, or noDifference when there is none);
+	// "" when it is.
 	EffectNotJudged string
 	// Tolerance and Verdict are the model's AUC tolerance and verdict
 	// (JudgementSensitive, JudgementRobust or JudgementUndetermined).
@@ -156,8 +157,25 @@ type BatchVerdict struct {
 	Diff, Low, High             float64
 	Method                      string
 	// NotJudged says why that difference is not judged
-	// (ExtentDifference.NotJudged); "" when it is.
+	// (ExtentDifference.NotJudged, or noDifference when there is none);
+	// "" when it is.
 	NotJudged string
+}
+
+// noDifference is the not-judged reason of a model none of whose
+// differences from the base extent could be formed (on one common test
+// point, say): its verdict is undetermined and counted as not judged, and
+// the reason column says why instead of staying empty as for a judged one.
+const noDifference = "no paired difference from the base extent could be formed"
+
+// noDifferenceWhy is noDifference, with the cause when the metric is
+// undefined on the base extent itself (a partial ROC ratio whose 1 - E
+// crossing falls among tied test points, say).
+func noDifferenceWhy(mv ModelVerdict) string {
+	if !mv.BaseDefined {
+		return noDifference + ": the metric is undefined on the base extent"
+	}
+	return noDifference
 }
 
 // BatchCounts adds up the studies' own verdicts.
@@ -339,6 +357,8 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
+		} else {
+			row.EffectNotJudged = noDifferenceWhy(mv)
 		}
 	}
 	for _, sc := range r.Scores {
@@ -450,6 +470,8 @@ func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
 	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 		d := mv.Diffs[mv.Largest]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
+	} else {
+		v.NotJudged = noDifferenceWhy(mv)
 	}
 	return v
 }

@@ -659,3 +659,49 @@ func TestSummaryEdgeSentences(t *testing.T) {
 		})
 	}
 }
+
+// TestSummaryNoDifferenceReason: a model none of whose differences from
+// the base extent could be formed (as on one common test point) is
+// undetermined and counted as not judged; its reason columns in
+// summary.csv and summary_verdicts.csv used to stay empty, as for a judged
+// model, so filtering on them missed it. They now say why, and that the
+// metric is undefined on the base extent when it is (undef, as a partial
+// ROC ratio can be). beta (judged, from handBatch) keeps empty reasons.
+func TestSummaryNoDifferenceReason(t *testing.T) {
+	studies := []StudyResult{handBatch()[1],
+		{ID: "lone", Report: "lone/report.html", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 1})},
+		{ID: "undef", Report: "undef/report.html", Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 30})}}
+	studies[2].Results.Sensitivity.ModelVerdicts[0].BaseDefined = false
+	s, err := Summarize(studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Counts.NotJudged != 2 {
+		t.Fatalf("not judged count %d, want 2 (lone, undef)", s.Counts.NotJudged)
+	}
+	for _, c := range []struct {
+		name   string
+		write  func(*bytes.Buffer) error
+		column string
+	}{
+		{"summary.csv", func(b *bytes.Buffer) error { return s.WriteCSV(b) }, "auc_diff_not_judged_reason"},
+		{"summary_verdicts.csv", func(b *bytes.Buffer) error { return s.WriteVerdictsCSV(b) }, "not_judged_reason"},
+	} {
+		var b bytes.Buffer
+		if err := c.write(&b); err != nil {
+			t.Fatal(err)
+		}
+		recs, err := csv.NewReader(&b).ReadAll()
+		if err != nil {
+			t.Fatal(err)
+		}
+		col := slices.Index(recs[0], c.column)
+		want := map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed",
+			"undef": "no paired difference from the base extent could be formed: the metric is undefined on the base extent"}
+		for _, rec := range recs[1:] {
+			if got := rec[col]; got != want[rec[0]] {
+				t.Errorf("%s %s %s = %q, want %q", c.name, rec[0], c.column, got, want[rec[0]])
+			}
+		}
+	}
+}

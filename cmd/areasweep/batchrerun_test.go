@@ -341,3 +341,51 @@ func TestBatchFolderWithoutMarker(t *testing.T) {
 		t.Errorf("--force left a without a marker: %v", err)
 	}
 }
+
+// TestBatchSummaryOnlyClosingLine: --summary-only runs no study, so its
+// closing line must not say that running the same command again retries
+// the failed studies, or that --force (with the same command) runs them:
+// both ran nothing. It names the batch command without --summary-only.
+func TestBatchSummaryOnlyClosingLine(t *testing.T) {
+	dir, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "runs")
+	for _, c := range []struct {
+		name    string
+		prepare func()
+		want    string
+	}{
+		// b never ran: not finished, retried by the batch command.
+		{"not run", func() {
+			if _, se, code := runBin(t, "batch", table, "--out", out, "--only", "a", "--quiet"); code != 0 {
+				t.Fatalf("--only a: exit %d: %s", code, se)
+			}
+		}, "running the batch command again without --summary-only retries them"},
+		// b finished, then its occurrence file changed: only --force runs it.
+		{"made from other inputs", func() {
+			if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
+				t.Fatalf("whole batch: exit %d: %s", code, se)
+			}
+			occ := filepath.Join(dir, "occ_b.csv")
+			b, err := os.ReadFile(occ)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(occ, append(b, '\n'), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			laterTime(t, occ)
+		}, "the batch command with --force and without --summary-only runs them again"},
+	} {
+		c.prepare()
+		_, se, code := runBin(t, "batch", table, "--out", out, "--summary-only", "--quiet")
+		if code != 1 || !strings.Contains(se, "1 of 2 studies failed: b") {
+			t.Fatalf("%s: --summary-only exit %d, want 1 with b failed: %s", c.name, code, se)
+		}
+		if !strings.Contains(se, c.want) {
+			t.Errorf("%s: closing line lacks %q:\n%s", c.name, c.want, se)
+		}
+		if strings.Contains(se, "running the same command again") || strings.Contains(se, "and --force runs them again") {
+			t.Errorf("%s: closing line tells to run --summary-only again, which runs nothing:\n%s", c.name, se)
+		}
+	}
+}

@@ -187,23 +187,29 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 	if occupied > 0 {
 		forced = append(forced, "whose folder holds files but no completion marker")
 	}
-	again := "running the same command again retries them"
+	// --summary-only runs no study, so the command that retries them (or
+	// runs them with --force) is the batch command without it.
+	rerun, force := "running the same command again", "--force"
+	if o.SummaryOnly {
+		rerun, force = "running the batch command again without --summary-only", "the batch command with --force and without --summary-only"
+	}
+	again := rerun + " retries them"
 	switch {
 	case damaged == failed:
 		again = "each line says what to do"
 	case stale == failed:
-		again = "--force runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
+		again = force + " runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
 	case occupied == failed:
-		again = "--force runs them again (their folders hold files but no completion marker; it replaces areasweep's files only)"
+		again = force + " runs them again (their folders hold files but no completion marker; it replaces areasweep's files only)"
 	case stale+occupied == failed:
-		again = "--force runs them again (they were made from other settings or inputs, their completion marker is damaged, or their folder holds files but no completion marker)"
+		again = force + " runs them again (they were made from other settings or inputs, their completion marker is damaged, or their folder holds files but no completion marker)"
 	case stale+occupied > 0:
-		again = "running the same command again retries them, but not those " + strings.Join(forced, ", or ") + " (--force)"
+		again = rerun + " retries them, but not those " + strings.Join(forced, ", or ") + " (--force)"
 		if damaged > 0 {
 			again += ", or with a damaged results.json or an input that cannot be read (see their lines)"
 		}
 	case damaged > 0:
-		again = "running the same command again retries them, but not those with a damaged results.json or an input that cannot be read (see their lines)"
+		again = rerun + " retries them, but not those with a damaged results.json or an input that cannot be read (see their lines)"
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
