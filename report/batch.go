@@ -77,6 +77,9 @@ type StudySummary struct {
 	// Occurrences is the SHA-256 of the study's occurrence file
 	// (Results.Inputs), "" when not recorded.
 	Occurrences string
+	// Warnings are the study's warnings (Results.Warnings), as its
+	// run.log and report give them.
+	Warnings []string
 }
 
 // BatchRow is one model of one study: its AUC across the study's scored
@@ -142,6 +145,8 @@ type BatchRow struct {
 	// NullNotJudged says why the null comparison is not read
 	// (NullGap.NotJudged); "" when it is.
 	NullNotJudged string
+	// Warnings is the number of the study's warnings (StudySummary.Warnings).
+	Warnings int
 }
 
 // BatchVerdict is one study's verdict on one metric for one model, with
@@ -257,6 +262,7 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 	ss.BaseExtent, ss.Extents = sens.BaseExtent, len(sens.ScoredExtents)
 	ss.StandIn = standInReason(r)
 	ss.Occurrences = occurrenceHash(r)
+	ss.Warnings = r.Warnings
 	for _, e := range r.Extents {
 		if e.ID == sens.BaseExtent {
 			ss.BaseAreaKm2 = e.AreaKm2
@@ -276,6 +282,7 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 	judged := false
 	for _, model := range sens.ModelNames {
 		row := studyRow(r, st.ID, model)
+		row.Warnings = len(r.Warnings)
 		s.Rows = append(s.Rows, row)
 		judged = judged || row.Judged
 		s.Counts.Pairs++

@@ -16,7 +16,7 @@ var summaryColumns = []string{
 	"auc_base", "test_points", "auc_min", "auc_min_extent", "auc_max", "auc_max_extent", "auc_range",
 	"effect_extent", "auc_diff", "auc_diff_ci_low", "auc_diff_ci_high", "auc_diff_points", "auc_diff_not_judged_reason", "tolerance", "auc_verdict",
 	"null", "auc_minus_null", "auc_minus_null_ci_low", "auc_minus_null_ci_high", "null_reading", "null_not_judged_reason",
-	"error",
+	"warnings", "error",
 }
 
 // verdictColumns are the columns of summary_verdicts.csv: one row per
@@ -77,7 +77,7 @@ func summaryRecord(r BatchRow) []string {
 		r.EffectExtent, num(r.Effect, r.EffectDefined), num(r.EffectLow, r.EffectDefined), num(r.EffectHigh, r.EffectDefined),
 		count(r.EffectPoints, r.EffectDefined), r.EffectNotJudged, num(r.Tolerance, true), string(r.Verdict),
 		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null], r.NullNotJudged,
-		"",
+		strconv.Itoa(r.Warnings), "",
 	}
 }
 

@@ -41,7 +41,9 @@ type pageData struct {
 	NoEffect      []string
 	Rows          []pageRow
 	Failed        []StudySummary
-	Methods       []textSection
+	// Warned are the studies with results that warned, in study order.
+	Warned  []StudySummary
+	Methods []textSection
 }
 
 // studyLink turns a study's relative report path into a link: each path
@@ -84,6 +86,9 @@ func (s *BatchSummary) page(svg []byte) ([]byte, error) {
 		}
 		if !drawn[st.ID] {
 			d.NoEffect = append(d.NoEffect, st.ID)
+		}
+		if len(st.Warnings) > 0 {
+			d.Warned = append(d.Warned, st)
 		}
 		for ; next < len(s.Rows) && s.Rows[next].Study == st.ID; next++ {
 			pr := pageRowOf(s.Rows[next], studyLink(st.Report))

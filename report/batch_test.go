@@ -705,3 +705,61 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 		}
 	}
 }
+
+// TestSummaryWarnings: a study that finished but warned (its region holds
+// none of its test points, its test points lie on training points, ...)
+// showed nothing of it in the batch's summary, so among dozens of studies
+// it went unnoticed. summary.csv gives each row its study's number of
+// warnings, and summary.html lists the warnings of each study that has
+// any (escaped), and nothing for a batch without warnings.
+func TestSummaryWarnings(t *testing.T) {
+	batch := handBatch()
+	batch[1].Results.Warnings = []string{"the base extent holds none of the test points: <check the region>", "2 duplicate presence(s) thinned"}
+	s, err := Summarize(batch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := s.WriteCSV(&b); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := slices.Index(recs[0], "warnings")
+	if col < 0 {
+		t.Fatalf("summary.csv has no warnings column: %v", recs[0])
+	}
+	for _, rec := range recs[1:] {
+		want := "0"
+		switch rec[0] {
+		case "beta":
+			want = "2"
+		case "delta":
+			want = "" // failed: no results, no warnings known
+		}
+		if rec[col] != want {
+			t.Errorf("%s: warnings %q, want %q", rec[0], rec[col], want)
+		}
+	}
+	page, err := s.page(nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`<a href="#warnings">Warnings</a>`, "<strong>beta</strong> (2):", "<li>the base extent holds none of the test points: &lt;check the region&gt;</li>", "<li>2 duplicate presence(s) thinned</li>"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("summary.html lacks %q", want)
+		}
+	}
+	if bytes.Contains(page, []byte("<strong>alpha</strong> (")) {
+		t.Error("summary.html lists alpha, which has no warnings")
+	}
+	quiet, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if page, err := quiet.page(nil); err != nil || bytes.Contains(page, []byte(`id="warnings"`)) {
+		t.Errorf("a batch without warnings has a warnings section (err %v)", err)
+	}
+}

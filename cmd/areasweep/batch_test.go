@@ -221,6 +221,17 @@ func TestBatch(t *testing.T) {
 		t.Errorf("broken's error in the summary: %q", e)
 	}
 	alpha := loadResults(t, filepath.Join(outs[0], "alpha"))
+	// A study that warned says so on its progress line, with the count.
+	_, se0, _ := runBin(t, "batch", table, "--out", filepath.Join(tmp, "warned"), "--jobs", "1")
+	var line string
+	for _, l := range strings.Split(se0, "\n") {
+		if strings.Contains(l, "alpha: finished in") {
+			line = l
+		}
+	}
+	if n := len(alpha.Warnings); n > 0 != strings.Contains(line, fmt.Sprintf(", with %d warning", n)) || n == 0 && strings.Contains(line, "warning") {
+		t.Errorf("alpha has %d warnings; its progress line: %q", n, line)
+	}
 	for _, sc := range alpha.Scores {
 		if sc.Model == "m" && sc.Extent == alpha.Sensitivity.BaseExtent {
 			if got := rows[0]["auc_base"]; got != fmt.Sprint(sc.AUC) && got != strings.TrimSuffix(fmt.Sprintf("%v", sc.AUC), ".0") {

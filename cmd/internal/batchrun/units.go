@@ -14,6 +14,7 @@ import (
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/pipeline"
+	"areasweep/report"
 )
 
 // unit is one piece of a batch run by batch.Run: a whole study, one
@@ -179,12 +180,16 @@ func runUnits(ctx context.Context, o *Options, studies []*study, units []unit, e
 		}
 		p.line(st.id, strings.TrimSpace(what+" started"))
 		t0 := time.Now()
-		err := runUnit(ctx, o, st, u)
+		warned, err := runUnit(ctx, o, st, u)
 		if err != nil {
 			p.line(st.id, strings.TrimSpace(what+" failed: ")+" "+oneLine(fault.UserText(err)))
 			return err
 		}
-		p.line(st.id, strings.TrimSpace(fmt.Sprintf("%s finished in %.1f s", what, time.Since(t0).Seconds())))
+		done := strings.TrimSpace(fmt.Sprintf("%s finished in %.1f s", what, time.Since(t0).Seconds()))
+		if warned > 0 {
+			done += fmt.Sprintf(", with %d warning%s (%s, and the summary's Warnings)", warned, report.Plural(warned), filepath.Join(st.id, "run.log"))
+		}
+		p.line(st.id, done)
 		return nil
 	})
 	for k, err := range runErrs {
@@ -209,8 +214,10 @@ func runUnits(ctx context.Context, o *Options, studies []*study, units []unit, e
 // moment (SIGKILL at a scheduler's time limit) leaves either its folder
 // as it was, to be run again, or every output with its marker, never
 // finished outputs without a marker (which a re-run would refuse as a
-// folder it did not make) nor a marker beside half-moved outputs.
-func runUnit(ctx context.Context, o *Options, st *study, u unit) error {
+// folder it did not make) nor a marker beside half-moved outputs. It
+// returns the number of warnings of a whole study or a merge (0 for a
+// shard, whose warnings its merge gives).
+func runUnit(ctx context.Context, o *Options, st *study, u unit) (int, error) {
 	po := st.opts
 	po.Quiet, po.Version = true, o.Version
 	var read []pipeline.InputFile
@@ -235,7 +242,7 @@ func runUnit(ctx context.Context, o *Options, st *study, u unit) error {
 		// from other settings) is run into again without --force.
 		po.Force = true
 		m = batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
-		return pipeline.RunShard(ctx, po, pio, u.shard, o.Shards)
+		return 0, pipeline.RunShard(ctx, po, pio, u.shard, o.Shards)
 	}
 	m = batch.Marker{"study": st.id, "settings": st.settings}
 	if u.merge {
@@ -244,11 +251,17 @@ func runUnit(ctx context.Context, o *Options, st *study, u unit) error {
 			files[k] = shardDir(o.Out, st.id, k+1)
 		}
 		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: o.Version}
-		_, err := pipeline.Merge(ctx, mo, pio)
-		return err
+		return warnings(pipeline.Merge(ctx, mo, pio))
 	}
-	_, err := pipeline.Run(ctx, po, pio)
-	return err
+	return warnings(pipeline.Run(ctx, po, pio))
+}
+
+// warnings is the number of warnings of a run's results.
+func warnings(r *report.Results, err error) (int, error) {
+	if err != nil || r == nil {
+		return 0, err
+	}
+	return len(r.Warnings), nil
 }
 
 // progress prints one line per study event to standard error.
