@@ -162,7 +162,8 @@ func TestBatch(t *testing.T) {
 		if code != 1 {
 			t.Fatalf("--jobs %s: exit %d, want 1 (one study fails)\n%s", jobs, code, se)
 		}
-		if !strings.Contains(so, "summary: "+filepath.Join(outs[i], "summary.html")) || !strings.Contains(se, "1 of 3 studies failed: broken") {
+		if !strings.Contains(so, "summary: "+filepath.Join(outs[i], "summary.html")) || !strings.Contains(se, "1 of 3 studies failed: broken") ||
+			!strings.Contains(se, "running the same command again retries them, once what their lines name is fixed") {
 			t.Errorf("--jobs %s: stdout %q stderr %q", jobs, so, se)
 		}
 		if forbidden.MatchString(se) {

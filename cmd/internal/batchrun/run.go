@@ -193,7 +193,7 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 	if o.SummaryOnly {
 		rerun, force = "running the batch command again without --summary-only", "the batch command with --force and without --summary-only"
 	}
-	again := rerun + " retries them"
+	again := rerun + " retries them, once what their lines name is fixed"
 	switch {
 	case damaged == failed:
 		again = "each line says what to do"
