@@ -74,8 +74,11 @@ type BatchError struct {
 }
 
 // Error formats the error as `inputs: FILE line N, study "ID", column "C": message`.
+// A value refused as a study file's (ErrBadValue) reads "bad value: ...":
+// the table, not a study file, holds it.
 func (e *BatchError) Error() string {
-	return located(e.File, e.Line, e.Study, "column", e.Column, e.Err)
+	s := located(e.File, e.Line, e.Study, "column", e.Column, e.Err)
+	return strings.Replace(s, ": "+strings.TrimPrefix(ErrBadValue.Error(), "inputs: ")+": ", ": bad value: ", 1)
 }
 
 // Unwrap returns the wrapped error.

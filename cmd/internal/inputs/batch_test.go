@@ -263,12 +263,19 @@ func TestBatchRefuses(t *testing.T) {
 		{"yaml empty", "", true, ErrBatchSyntax, "settings:"},
 		{"yaml no studies", "settings: {iterations: 5}\n", true, ErrBatchEmpty, "no study"},
 		{"yaml study file", "model:\n  - good=m.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 5\n", true, ErrBatchSyntax, "this is a study file"},
+		// A cell's value is the table's, not a study file's, and a name
+		// given twice in one cell is not "already given at" its own line.
+		{"bad cell", "id,model,occurrences,region,e\na,m=x,p,r,abc\n", false, ErrBadValue, `column "e": bad value: not a list of numbers`},
+		{"name twice in a cell", "id,model,occurrences,region\na,g=x;g=y,p,r\n", false, ErrBadValue, `the name "g" is given twice on this line`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			_, err := ParseBatch([]byte(c.text), "t", "", c.yaml)
 			if !errors.Is(err, c.want) || !strings.Contains(err.Error(), c.words) {
 				t.Fatalf("got %v; want %v with %q", err, c.want, c.words)
+			}
+			if strings.Contains(err.Error(), "in study file") {
+				t.Errorf("a table's problem is called a study file's: %v", err)
 			}
 		})
 	}

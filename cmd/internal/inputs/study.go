@@ -532,7 +532,11 @@ func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
 			return "", &lineErr{n.Line, fmt.Errorf("%w: %w", ErrBadValue, noPrefix{err})}
 		}
 		if first, dup := seen[name]; dup {
-			return "", &lineErr{n.Line, badValue("the name %q is already given at line %d; give each its own name", name, first)}
+			where := fmt.Sprintf("already given at line %d", first)
+			if first == n.Line {
+				where = "given twice on this line" // a table's cell, or a list on one line
+			}
+			return "", &lineErr{n.Line, badValue("the name %q is %s; give each its own name", name, where)}
 		}
 		seen[name] = n.Line
 		return name + "=" + resolvePath(dir, p), nil
