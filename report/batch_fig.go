@@ -62,7 +62,7 @@ func effectFigure(s *BatchSummary) (figure, bool) {
 		f.Caption += fmt.Sprintf(" The studies used different tolerances, so no band is drawn; an effect on fewer than %d common test points is not judged (our cut-off).", MinPairedPoints)
 	}
 	if few := s.fewPointEffects(); len(few) > 0 {
-		f.Caption += fmt.Sprintf(" Drawn but not judged, on fewer than %d common test points: %s.", MinPairedPoints, joinList(few))
+		f.Caption += fmt.Sprintf(" Drawn with a dashed bar and not judged, on fewer than %d common test points: %s.", MinPairedPoints, joinList(few))
 	}
 	if labels {
 		f.Caption += " n: the study's test points on its base extent; an effect rests on those the other extent holds too (summary.csv, auc_diff_points)."
@@ -111,6 +111,9 @@ func (s *BatchSummary) fewPointEffects() []string {
 	return out
 }
 
+// notJudgedDashes dash the bar of an extent effect that is not judged.
+var notJudgedDashes = []vg.Length{vg.Points(2), vg.Points(1.5)}
+
 // xErrPoints pairs points with asymmetric horizontal error offsets.
 type xErrPoints struct {
 	plotter.XYs
@@ -155,34 +158,54 @@ func effectPlot(s *BatchSummary, order []string, labels bool, w vg.Length) (*plo
 	}
 	lo, hi := 0.0, 0.0
 	var items []legendItem
+	anyNotJudged := false
 	for j, model := range models {
-		var pts xErrPoints
+		// Judged effects (index 0) and those not judged (1): the latter's
+		// bars are dashed, so that they do not read as the others.
+		var pts [2]xErrPoints
 		for _, r := range s.Rows {
 			i, ok := row[r.Study]
 			if r.Model != model || !r.EffectDefined || !ok {
 				continue
 			}
+			k := 0
+			if !r.EffectJudged {
+				k, anyNotJudged = 1, true
+			}
 			y := float64(i) + offset(r.Study, r.Model)
-			pts.XYs = append(pts.XYs, plotter.XY{X: r.Effect, Y: y})
-			pts.XErrors = append(pts.XErrors, struct{ Low, High float64 }{Low: math.Max(0, r.Effect-r.EffectLow), High: math.Max(0, r.EffectHigh-r.Effect)})
+			pts[k].XYs = append(pts[k].XYs, plotter.XY{X: r.Effect, Y: y})
+			pts[k].XErrors = append(pts[k].XErrors, struct{ Low, High float64 }{Low: math.Max(0, r.Effect-r.EffectLow), High: math.Max(0, r.EffectHigh-r.Effect)})
 			lo, hi = math.Min(lo, math.Min(r.EffectLow, r.Effect)), math.Max(hi, math.Max(r.EffectHigh, r.Effect))
 		}
-		if len(pts.XYs) == 0 {
-			continue
+		drawn := false
+		for k := range pts {
+			if len(pts[k].XYs) == 0 {
+				continue
+			}
+			eb, err := plotter.NewXErrorBars(pts[k])
+			if err != nil {
+				return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+			}
+			eb.LineStyle = lineStyle(modelColor(j), 0.8, nil)
+			if k == 1 {
+				eb.LineStyle.Dashes = notJudgedDashes
+			}
+			eb.CapWidth = vg.Points(2.5)
+			sc, err := plotter.NewScatter(pts[k].XYs)
+			if err != nil {
+				return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+			}
+			sc.GlyphStyle = markerStyle(j)
+			p.Add(eb, sc)
+			drawn = true
 		}
-		eb, err := plotter.NewXErrorBars(pts)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
+		if drawn {
+			items = append(items, legendItem{model, glyphThumb{gs: markerStyle(j)}})
 		}
-		eb.LineStyle = lineStyle(modelColor(j), 0.8, nil)
-		eb.CapWidth = vg.Points(2.5)
-		sc, err := plotter.NewScatter(pts.XYs)
-		if err != nil {
-			return nil, nil, fmt.Errorf("report: figure %s: %w", EffectFigure, err)
-		}
-		sc.GlyphStyle = markerStyle(j)
-		p.Add(eb, sc)
-		items = append(items, legendItem{model, glyphThumb{gs: sc.GlyphStyle}})
+	}
+	if anyNotJudged {
+		items = append(items, legendItem{fmt.Sprintf("dashed bar: not judged (fewer than %d common test points)", MinPairedPoints),
+			lineThumb{lineStyle(ink, 0.8, notJudgedDashes)}})
 	}
 	if len(s.Tolerances) == 1 {
 		t := s.Tolerances[0]

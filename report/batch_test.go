@@ -550,12 +550,21 @@ func TestSummaryNotJudged(t *testing.T) {
 	if !ok {
 		t.Fatal("no figure")
 	}
-	for _, want := range []string{"Drawn but not judged, on fewer than 10 common test points: few (m1, 6).",
+	for _, want := range []string{"Drawn with a dashed bar and not judged, on fewer than 10 common test points: few (m1, 6).",
 		"In nobase the base extent could not be scored", "(our default tolerance, not a published standard)",
 		"A bar across or inside the band does not settle the verdict"} {
 		if !strings.Contains(f.Caption, want) {
 			t.Errorf("caption lacks %q:\n%s", want, f.Caption)
 		}
+	}
+	// The effect not judged was drawn like the judged ones: its bar is now
+	// dashed (the only dashed stroke of the figure) and the key says so.
+	svg, err := render(f, "svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(svg, []byte("dashed bar: not judged (fewer than 10 common test points)")) || !bytes.Contains(svg, []byte("stroke-dasharray")) {
+		t.Error("the figure has no dashed bar or no key for the effect not judged")
 	}
 	page, err := s.page(nil)
 	if err != nil {
