@@ -21,7 +21,10 @@ type study struct {
 	line     int
 	opts     pipeline.Options
 	settings string // batch.SettingsHash of the settings
-	dir      string // --out/<id>
+	// canonical are the settings as hashed (canonicalSettings): the
+	// marker keeps them, so that a changed row can be told by its keys.
+	canonical []byte
+	dir       string // --out/<id>
 	// inputs compares the input files a marker records with the files
 	// now; one for the whole batch, shared by its studies.
 	inputs *batch.Checker
@@ -95,7 +98,8 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 		// (runSlurm), before anything is submitted.
 		st.missing = bad(col, err)
 	}
-	st.settings = batch.SettingsHash(canonicalSettings(po))
+	st.canonical = canonicalSettings(po)
+	st.settings = batch.SettingsHash(st.canonical)
 	return st, nil
 }
 
@@ -213,4 +217,34 @@ func canonicalSettings(o pipeline.Options) []byte {
 		panic("batch: settings cannot be encoded: " + err.Error()) // plain fields only: a programmer's error
 	}
 	return data
+}
+
+// markerValues is the marker key holding the study's settings as hashed
+// (canonicalSettings' JSON, one line), from which settingsDiff names what
+// changed; markers written before it have none.
+const markerValues = "settings.values"
+
+// maxDiffShown is how many changed settings settingsDiff names.
+const maxDiffShown = 3
+
+// settingsDiff names the settings (by their flags and study-file keys,
+// in the settings table's order) whose values differ between the
+// canonical settings a marker recorded (was) and the row's now,
+// "iterations 200 then, 250 now", at most maxDiffShown of them; "" when
+// was is empty or does not decode, or no setting of the table differs.
+func settingsDiff(was string, now []byte) string {
+	var a, b pipeline.Options
+	if was == "" || json.Unmarshal([]byte(was), &a) != nil || json.Unmarshal(now, &b) != nil {
+		return ""
+	}
+	var out []string
+	ch := settings.Changes(&a.Values, &b.Values)
+	for i, c := range ch {
+		if i == maxDiffShown {
+			out = append(out, fmt.Sprintf("and %d more", len(ch)-i))
+			break
+		}
+		out = append(out, fmt.Sprintf("%s %s then, %s now", c.Name, c.A, c.B))
+	}
+	return strings.Join(out, "; ")
 }

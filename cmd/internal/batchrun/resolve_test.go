@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/pipeline"
+	"areasweep/cmd/internal/settings"
 )
 
 // TestBatchSettingsHashIgnoresHowTableIsNamed: the studies' input paths
@@ -49,5 +51,41 @@ func TestBatchSettingsHashIgnoresHowTableIsNamed(t *testing.T) {
 	byAbs[1].opts.Occurrences = s.Far
 	if h := batch.SettingsHash(canonicalSettings(byAbs[1].opts)); h == byRel[1].settings {
 		t.Error("another occurrence file gave the same settings checksum")
+	}
+}
+
+// TestSettingsDiff: a finished study whose table row changed was refused
+// as "made from other settings" without saying which; the marker now
+// keeps the settings, and the refusal names each changed key with both
+// values (at most maxDiffShown, then a count). A marker from before
+// (no settings kept) or one that does not decode gives no names.
+func TestSettingsDiff(t *testing.T) {
+	base := pipeline.Options{Values: settings.Defaults()}
+	change := func(f func(o *pipeline.Options)) []byte {
+		o := base
+		o.E = append([]float64{}, base.E...)
+		f(&o)
+		return canonicalSettings(o)
+	}
+	was := string(canonicalSettings(base))
+	for _, c := range []struct {
+		name string
+		was  string
+		now  []byte
+		want string
+	}{
+		{"same", was, canonicalSettings(base), ""},
+		{"one number", was, change(func(o *pipeline.Options) { o.Iterations = 250 }), "iterations 1000 then, 250 now"},
+		{"a list and a text", was, change(func(o *pipeline.Options) { o.E = []float64{0.05, 0.1}; o.EcoregionField = "unit" }),
+			`ecoregion-field "" then, "unit" now; e [0.05] then, [0.05, 0.1] now`},
+		{"more than three", was, change(func(o *pipeline.Options) {
+			o.Iterations, o.Fraction, o.Seed, o.NoThin = 10, 0.25, 9, true
+		}), "iterations 1000 then, 10 now; fraction 0.5 then, 0.25 now; seed 1 then, 9 now; and 1 more"},
+		{"an older marker", "", change(func(o *pipeline.Options) { o.Iterations = 250 }), ""},
+		{"a damaged value", "{", change(func(o *pipeline.Options) { o.Iterations = 250 }), ""},
+	} {
+		if got := settingsDiff(c.was, c.now); got != c.want {
+			t.Errorf("%s: %q, want %q", c.name, got, c.want)
+		}
 	}
 }

@@ -43,7 +43,7 @@ func TestSlurmPendingStale(t *testing.T) {
 		var ids []string
 		for _, s := range stale {
 			ids = append(ids, s.st.id)
-			if !strings.Contains(s.why.why, "from other settings") {
+			if !strings.Contains(s.why.why, "from other settings (the table row changed since it finished: seed 11 then, 12 now)") {
 				t.Errorf("force %v: %s stale because %q; want the row named", force, s.st.id, s.why.why)
 			}
 		}

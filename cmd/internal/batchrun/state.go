@@ -60,7 +60,11 @@ func (st *study) markerState(dir string) (studyState, staleness, error) {
 		// is empty or damaged and vouches for nothing in the folder.
 		return stateStale, staleness{"by a run its completion marker " + batch.MarkerPath(dir) + " does not tell (the marker is empty or damaged: it records no settings)", "remove the folder"}, nil
 	case m["settings"] != st.settings:
-		return stateStale, staleness{"from other settings (the table row changed since it finished)", "remove the folder"}, nil
+		why := "the table row changed since it finished"
+		if d := settingsDiff(m[markerValues], st.canonical); d != "" {
+			why += ": " + d
+		}
+		return stateStale, staleness{"from other settings (" + why + ")", "remove the folder"}, nil
 	}
 	files, err := m.Inputs()
 	if err != nil {

@@ -241,10 +241,10 @@ func runUnit(ctx context.Context, o *Options, st *study, u unit) (int, error) {
 		// marker (a shard stopped before it could write one, or made
 		// from other settings) is run into again without --force.
 		po.Force = true
-		m = batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings}
+		m = batch.Marker{"study": st.id, "shard": fmt.Sprintf("%d/%d", u.shard, o.Shards), "settings": st.settings, markerValues: string(st.canonical)}
 		return 0, pipeline.RunShard(ctx, po, pio, u.shard, o.Shards)
 	}
-	m = batch.Marker{"study": st.id, "settings": st.settings}
+	m = batch.Marker{"study": st.id, "settings": st.settings, markerValues: string(st.canonical)}
 	if u.merge {
 		files := make([]string, o.Shards)
 		for k := range files {

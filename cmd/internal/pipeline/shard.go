@@ -7,12 +7,12 @@ import (
 	"encoding/json"
 	"fmt"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"time"
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/shardfile"
 	"areasweep/extent"
 	"areasweep/extent/vocab"
@@ -91,10 +91,17 @@ func (r recordedRun) settingsHash() string {
 	return hex.EncodeToString(sum[:])
 }
 
-// canonical is the JSON the settings hash is taken of: input paths left
-// out (the names of NAME=PATH items kept), and the seed (compared on its
-// own, ShardHeader.Seed).
+// canonical is the JSON the settings hash is taken of: the run as
+// compared (compared).
 func (r recordedRun) canonical() []byte {
+	b, _ := json.Marshal(r.compared()) // plain values: cannot fail
+	return b
+}
+
+// compared is the run as shards are compared: input paths left out (the
+// names of NAME=PATH items kept), and the seed (compared on its own,
+// ShardHeader.Seed).
+func (r recordedRun) compared() recordedRun {
 	names := func(items []string) []string {
 		out := []string{}
 		for _, it := range items {
@@ -107,29 +114,24 @@ func (r recordedRun) canonical() []byte {
 	c.Models, c.Nulls, c.Extra = names(r.Models), names(r.Nulls), names(r.Extra)
 	c.Occurrences, c.Region, c.Ecoregions = "", "", ""
 	c.Seed = 0
-	b, _ := json.Marshal(c) // plain values: cannot fail
-	return b
+	return c
 }
 
 // settingsDiff names the settings in which two recorded runs (partial
-// files' run sections) differ, as "iterations 200 vs 300", in the
-// recorded order; "" when they cannot be read or do not differ.
+// files' run sections) differ, as compared (compared), "iterations 200
+// vs 300" (settings.Changes, in the settings table's order); "" when they
+// cannot be read or do not differ.
 func settingsDiff(a, b []byte) string {
 	var ra, rb recordedRun
 	if json.Unmarshal(a, &ra) != nil || json.Unmarshal(b, &rb) != nil {
 		return ""
 	}
-	var ma, mb map[string]json.RawMessage
-	if json.Unmarshal(ra.canonical(), &ma) != nil || json.Unmarshal(rb.canonical(), &mb) != nil {
-		return ""
-	}
+	var oa, ob Options
+	ra.compared().apply(&oa)
+	rb.compared().apply(&ob)
 	var diffs []string
-	t := reflect.TypeFor[recordedRun]()
-	for i := range t.NumField() {
-		k, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
-		if va, vb := string(ma[k]), string(mb[k]); va != vb {
-			diffs = append(diffs, strings.ReplaceAll(k, "_", "-")+" "+va+" vs "+vb)
-		}
+	for _, c := range settings.Changes(&oa.Values, &ob.Values) {
+		diffs = append(diffs, c.Name+" "+c.A+" vs "+c.B)
 	}
 	return strings.Join(diffs, ", ")
 }

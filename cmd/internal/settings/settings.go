@@ -10,6 +10,9 @@ package settings
 
 import (
 	"fmt"
+	"reflect"
+	"strconv"
+	"strings"
 
 	"areasweep/report"
 )
@@ -246,4 +249,43 @@ func StudyKeys() []string {
 		}
 	}
 	return keys
+}
+
+// Change is a setting whose value differs between two Values: its name
+// (the flag and study-file key) and the two values as a message shows
+// them (Show).
+type Change struct{ Name, A, B string }
+
+// Changes lists the settings of Table whose values differ between a and
+// b, in the table's order: the one comparison of two runs' settings (a
+// changed batch row, shards of different runs).
+func Changes(a, b *Values) []Change {
+	var out []Change
+	for _, s := range Table {
+		x, y := reflect.ValueOf(s.Field(a)).Elem().Interface(), reflect.ValueOf(s.Field(b)).Elem().Interface()
+		if !reflect.DeepEqual(x, y) {
+			out = append(out, Change{s.Name, Show(x), Show(y)})
+		}
+	}
+	return out
+}
+
+// Show writes a setting's value as a message shows it: a number in Go's
+// shortest exact form, a list in brackets ([] when empty), a text quoted.
+func Show(v any) string {
+	switch x := v.(type) {
+	case string:
+		return strconv.Quote(x)
+	case []string:
+		return "[" + strings.Join(x, ", ") + "]"
+	case []float64:
+		parts := make([]string, len(x))
+		for i, f := range x {
+			parts[i] = strconv.FormatFloat(f, 'g', -1, 64)
+		}
+		return "[" + strings.Join(parts, ", ") + "]"
+	case float64:
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	return fmt.Sprint(v)
 }
