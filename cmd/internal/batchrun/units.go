@@ -60,6 +60,8 @@ func runStudies(ctx context.Context, o *Options, studies []*study, p *progress) 
 func toRun(o *Options, studies []*study, errs []error, p *progress) []int {
 	workers := max(1, runtime.GOMAXPROCS(0)/o.Jobs)
 	var todo []int
+	var skipped []string
+	defer func() { p.skipped(skipped) }()
 	for i, st := range studies {
 		if st.missing != nil {
 			errs[i] = st.missing
@@ -72,7 +74,7 @@ func toRun(o *Options, studies []*study, errs []error, p *progress) []int {
 			errs[i] = forceNote(o, err)
 			continue
 		case s == stateDone:
-			p.line(st.id, "already finished, skipped")
+			skipped = append(skipped, st.id)
 			continue
 		case s == stateStale && !o.Force:
 			errs[i] = &staleError{fmt.Sprintf("%s was made %s; add --force to run it again, or %s", st.dir, why.why, why.remedy)}
@@ -269,6 +271,28 @@ type progress struct {
 	quiet bool
 	w     io.Writer
 	mu    sync.Mutex
+}
+
+// maxSkipLines is how many finished studies the progress names one line
+// each; past that one line counts them (our choice: a rerun of a batch of
+// dozens printed a line for every finished study).
+const maxSkipLines = 10
+
+// skipped prints the studies skipped as finished, in table order: a line
+// each, or one line for all when they are more than maxSkipLines.
+func (p *progress) skipped(ids []string) {
+	if len(ids) <= maxSkipLines {
+		for _, id := range ids {
+			p.line(id, "already finished, skipped")
+		}
+		return
+	}
+	if p.quiet {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	fmt.Fprintf(p.w, "areasweep batch: %d studies already finished, skipped (%s, ... %s; summary.csv lists them)\n", len(ids), strings.Join(ids[:3], ", "), ids[len(ids)-1])
 }
 
 func (p *progress) line(id, what string) {
