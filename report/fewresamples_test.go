@@ -91,6 +91,13 @@ func TestFewResamplesNotJudged(t *testing.T) {
 			resampled[p.Metric] = true
 		}
 	}
+	// The headline says why the partial ROC ratio is undetermined.
+	if h := s39.Headline; !strings.Contains(h, "is undetermined for") || !strings.Contains(h, "(not judged: its differences come from 39 resamples, fewer than the 40 we judge on, our cut-off).") {
+		t.Errorf("headline at 39 resamples: %s", h)
+	}
+	if strings.Contains(s40.Headline, "not judged: its differences come from") {
+		t.Errorf("headline at 40 resamples: %s", s40.Headline)
+	}
 	for i, mv := range s39.ModelVerdicts {
 		if mv40, w := s40.ModelVerdicts[i], want.ModelVerdicts[i]; mv40.Verdict != w.Verdict || mv40.Sentence != w.Sentence {
 			t.Errorf("%s of %s at 40: %s %q, want the sample's %s %q", mv.Metric, mv.Model, mv40.Verdict, mv40.Sentence, w.Verdict, w.Sentence)

@@ -253,6 +253,12 @@ func headline(a *analysis, s *Sensitivity) string {
 				}
 			}
 			if pr := verdictsByJudgement(mvs); pr != "" {
+				// Every partial ROC difference comes from the paired
+				// resamples: with fewer than the cut-off none is judged,
+				// which is why it is undetermined.
+				if n := a.r.Settings.PairedResamples; n < MinPercentileResamples {
+					pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
+				}
 				fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
 			}
 		}
