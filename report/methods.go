@@ -771,13 +771,19 @@ func aucAnswer(s *Sensitivity) string {
 
 // rankingOrderText says, after an AUC model comparison counted over the
 // extents, whether the order of the two models held: ", so their order
-// held on every extent" when one is better beyond noise on all of them,
+// held on every extent" when one is better beyond noise on all of them
+// (", ... on every extent compared" when some extents were not compared),
 // ", so their order depends on the extent" when each is better beyond
 // noise somewhere, ", so their order did not reverse beyond noise on any
 // extent" when only the first is, else "".
 func rankingOrderText(rk ModelRanking) string {
 	switch {
 	case rk.Extents > 1 && (rk.Better == rk.Extents || rk.Worse == rk.Extents):
+		if len(rk.Diffs) > rk.Extents {
+			// Some extents were not compared (too few common test
+			// points or resamples, or a model undefined there).
+			return ", so their order held on every extent compared"
+		}
 		return ", so their order held on every extent"
 	case rk.Better > 0 && rk.Worse > 0:
 		return ", so their order depends on the extent"
