@@ -310,3 +310,88 @@ func TestBatchNotJudgedReason(t *testing.T) {
 		t.Errorf("no %s difference in summary_verdicts.csv", key)
 	}
 }
+
+// TestMethodsBootstrapFewFormed: with fewer than 40 formed resamples the
+// report gives no percentiles or P of the published partial ROC bootstrap
+// (BootstrapReadable), but the methods text said "with its own interval
+// and p-value from the published bootstrap of 39 resamples" with no word
+// that neither is given (seen on a run of the demo with --iterations 39,
+// whose Scores table shows "–" in both columns on every row). The cases
+// set the resamples drawn and formed; the expected words follow from the
+// two cut-offs (10 test records, 40 formed resamples) and the counts of
+// each case (no other computation).
+func TestMethodsBootstrapFewFormed(t *testing.T) {
+	const (
+		onFormed = "; neither is given where fewer than 40 resamples formed a ratio, our cut-off)"
+		onPoints = "; neither is given on an extent with fewer than 10 test records, our cut-off)"
+		onBoth   = "; neither is given on an extent with fewer than 10 test records or where fewer than 40 resamples formed a ratio, our cut-offs)"
+	)
+	cases := []struct {
+		name            string
+		iterations      int
+		notFormedOnBase int
+		basePoints      int
+		want            string
+		notWant         []string
+	}{
+		{"39 drawn, all formed", 39, 0, 0, "p is not resolved below 1/39" + onFormed, nil},
+		{"10 drawn, all formed", 10, 0, 0, "p is not resolved below 1/10" + onFormed, nil},
+		{"40 drawn, all formed", 40, 0, 0, "p is not resolved below 1/40)", []string{"neither is given"}},
+		{"40 drawn, 1 not formed on base", 40, 1, 0, "p is not resolved below 1/40" + onFormed, nil},
+		{"200 drawn, base on 5 test records", 200, 0, 5, "p is not resolved below 1/200" + onPoints, []string{"resamples formed a ratio"}},
+		{"39 drawn, base on 5 test records", 39, 0, 5, "p is not resolved below 1/39" + onBoth, nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			r.Settings.Iterations = c.iterations
+			for i := range r.Scores {
+				sc := &r.Scores[i]
+				for j := range sc.PartialROC {
+					sc.PartialROC[j].Iterations, sc.PartialROC[j].NotFormed = c.iterations, 0
+					if sc.Extent == "base" && sc.Model == "good" {
+						sc.PartialROC[j].NotFormed = c.notFormedOnBase
+					}
+				}
+				if c.basePoints > 0 && sc.Extent == "base" && sc.Model == "good" {
+					sc.TestPoints = c.basePoints
+				}
+			}
+			analyzed(t, r)
+			checkWords(t, "methods", methodsText(r), []string{c.want}, c.notWant)
+		})
+	}
+}
+
+// TestHeadlineFewResamplesNamesModels: at 39 resamples the headline gave
+// every model undetermined on the partial ROC ratio the reason "not
+// judged: its differences come from 39 resamples", also a model undefined
+// on the base extent, which has no difference to judge (seen on the demo
+// with --iterations 39: coarse's ratio at E = 0.05 is undefined on base,
+// the methods text says so). When the reason is not every model's, it
+// names the models it is about. The cases follow from which model's
+// differences are formed (no other computation).
+func TestHeadlineFewResamplesNamesModels(t *testing.T) {
+	const tail = "its differences come from 39 resamples, fewer than the 40 we judge on, our cut-off)."
+	cases := []struct {
+		name      string
+		undefined string // model whose partial ROC differences are not formed
+		want      string
+	}{
+		{"every model's differences formed", "", "undetermined for good, truncated and broad (not judged: " + tail},
+		{"broad's differences not formed", "broad", "undetermined for good, truncated and broad (not judged for good and truncated: " + tail},
+		{"good's differences not formed", "good", "undetermined for good, truncated and broad (not judged for truncated and broad: " + tail},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r, key := fewResamples(t, 39)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Metric == key && p.Kind == "extent" && p.Model == c.undefined {
+					p.Defined = false
+				}
+			}
+			s := analyzed(t, r)
+			checkWords(t, "headline", s.Headline, []string{c.want}, nil)
+		})
+	}
+}

@@ -141,6 +141,21 @@ func verdictsByJudgement(mvs []ModelVerdict) string {
 	return joinList(parts)
 }
 
+// fewResampleModels lists the models of mvs with a difference not judged
+// for too few formed resamples.
+func fewResampleModels(mvs []ModelVerdict) []string {
+	var few []string
+	for _, mv := range mvs {
+		for _, d := range mv.Diffs {
+			if d.Defined && d.Position == positionTooFewResamples {
+				few = append(few, mv.Model)
+				break
+			}
+		}
+	}
+	return few
+}
+
 // testPointText says how many test points the extents hold.
 func testPointText(s *Sensitivity) string {
 	if len(s.TestPoints) == 0 {
@@ -256,8 +271,15 @@ func headline(a *analysis, s *Sensitivity) string {
 				// Every partial ROC difference comes from the paired
 				// resamples: with fewer than the cut-off none is judged,
 				// which is why it is undetermined.
+				// A model undefined on the base extent has no
+				// differences to judge: name the models the reason
+				// is about when it is not every one of them.
 				if n := a.r.Settings.PairedResamples; n < MinPercentileResamples {
-					pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
+					if few := fewResampleModels(mvs); len(few) == len(mvs) {
+						pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
+					} else if len(few) > 0 {
+						pr += fmt.Sprintf(" (not judged for %s: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", joinList(few), n, Plural(n), MinPercentileResamples)
+					}
 				}
 				fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
 			}

@@ -151,8 +151,13 @@ func methodsScores(b *strings.Builder, r *Results) {
 	if len(st.E) > 0 {
 		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
-		if fewTestPoints(r) {
+		switch fewPts, fewB := fewTestPoints(r), fewFormedBootstrap(r); {
+		case fewPts && fewB:
+			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records or where fewer than %d resamples formed a ratio, our cut-offs", MinPairedPoints, MinPercentileResamples)
+		case fewPts:
 			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records, our cut-off", MinPairedPoints)
+		case fewB:
+			fmt.Fprintf(b, "; neither is given where fewer than %d resamples formed a ratio, our cut-off", MinPercentileResamples)
 		}
 		b.WriteString(")")
 	}
@@ -173,6 +178,24 @@ func methodsScores(b *strings.Builder, r *Results) {
 		}
 	}
 	b.WriteString(".")
+}
+
+// fewFormedBootstrap tells whether the published bootstrap of a scored
+// partial ROC ratio on enough test points formed some resamples, but fewer
+// than MinPercentileResamples: the report gives no percentiles or P there
+// (BootstrapReadable), as on too few test points (fewTestPoints).
+func fewFormedBootstrap(r *Results) bool {
+	for _, sc := range r.Scores {
+		if !sc.Scored || sc.TestPoints < MinPairedPoints {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			if formedPartialROC(pr) && !BootstrapReadable(pr, sc.TestPoints) {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // methodsInference writes how the scores' uncertainty and the
@@ -748,13 +771,19 @@ func aucAnswer(s *Sensitivity) string {
 
 // rankingOrderText says, after an AUC model comparison counted over the
 // extents, whether the order of the two models held: ", so their order
-// held on every extent" when one is better beyond noise on all of them,
+// held on every extent" when one is better beyond noise on all of them
+// (", ... on every extent compared" when some extents were not compared),
 // ", so their order depends on the extent" when each is better beyond
 // noise somewhere, ", so their order did not reverse beyond noise on any
 // extent" when only the first is, else "".
 func rankingOrderText(rk ModelRanking) string {
 	switch {
 	case rk.Extents > 1 && (rk.Better == rk.Extents || rk.Worse == rk.Extents):
+		if len(rk.Diffs) > rk.Extents {
+			// Some extents were not compared (too few common test
+			// points or resamples, or a model undefined there).
+			return ", so their order held on every extent compared"
+		}
 		return ", so their order held on every extent"
 	case rk.Better > 0 && rk.Worse > 0:
 		return ", so their order depends on the extent"
