@@ -638,7 +638,18 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 			fmt.Fprintf(b, " (%s, %s km²)", s.ScoredExtents[0], fmtArea(lo))
 		} else {
 			// The headline's rounding, so that the same areas read the same.
-			fmt.Fprintf(b, " (%s and %d other%s) %s", referenceName(s), n-1, Plural(n-1), areaRange(lo, hi))
+			// A stand-in's reason after a semicolon: inside the
+			// parenthesis, referenceText's own parenthesis nested.
+			ref, why := referenceName(s), ""
+			if s.BaseExtent != vocab.BaseID {
+				ref = "the reference extent " + s.BaseExtent
+				for _, e := range s.SkippedExtents {
+					if e.ID == vocab.BaseID {
+						why = fmt.Sprintf("; it stands in for the base extent %s, left out: %s", e.ID, e.Reason)
+					}
+				}
+			}
+			fmt.Fprintf(b, " (%s and %d other%s%s) %s", ref, n-1, Plural(n-1), why, areaRange(lo, hi))
 		}
 	}
 	if s.TestPointsVary {

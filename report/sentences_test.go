@@ -1425,7 +1425,10 @@ func TestReferenceExtentInPlaceOfBase(t *testing.T) {
 	checkWords(t, "methods", methodsText(r), []string{
 		"its difference from the reference extent " + ref + ", in place of the base extent base (left out: ",
 		"we compared every extent with the reference extent on the test records both hold",
-		"On the reference extent the AUC of good"}, notWant)
+		"On the reference extent the AUC of good",
+		// The reply's list of extents, without a parenthesis nested in its own.
+		"(the reference extent " + ref + " and " + fmt.Sprint(len(s.ScoredExtents)-1) + " others; it stands in for the base extent base, left out: no model could be scored)"},
+		append(notWant, "(left out: no model could be scored) and"))
 	checkWords(t, "headline", s.Headline, []string{"Differences are taken from the reference extent " + ref + ", in place of the base extent base (left out: "}, nil)
 	if r0 := analyzed(t, withNull(t)); strings.Contains(r0.Headline, "Differences are taken from") {
 		t.Errorf("headline with the base extent scored names a reference extent: %s", r0.Headline)
