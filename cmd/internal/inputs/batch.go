@@ -591,8 +591,13 @@ func cellNode(key, cell string, line int) *yaml.Node {
 		}
 		return n
 	}
-	return &yaml.Node{Kind: yaml.ScalarNode, Value: cell, Line: line}
+	return &yaml.Node{Kind: yaml.ScalarNode, Value: cell, Line: line, LineComment: tableCell}
 }
+
+// tableCell marks (as its LineComment, which nothing writes out) a node
+// made from a CSV table's cell, so that a message can show how a value is
+// written there rather than in a study file.
+const tableCell = "table cell"
 
 // finish checks ids and required keys and lays every row over the shared
 // block.

@@ -265,7 +265,7 @@ func TestBatchRefuses(t *testing.T) {
 		{"yaml study file", "model:\n  - good=m.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 5\n", true, ErrBatchSyntax, "this is a study file"},
 		// A cell's value is the table's, not a study file's, and a name
 		// given twice in one cell is not "already given at" its own line.
-		{"bad cell", "id,model,occurrences,region,e\na,m=x,p,r,abc\n", false, ErrBadValue, `column "e": bad value: not a list of numbers`},
+		{"bad cell", "id,model,occurrences,region,e\na,m=x,p,r,abc\n", false, ErrBadValue, `column "e": bad value: not a list of numbers: item 1 "abc" is not a finite number; give numbers separated by ';' with a dot as decimal separator, for example 0.05;0.1`},
 		{"name twice in a cell", "id,model,occurrences,region\na,g=x;g=y,p,r\n", false, ErrBadValue, `the name "g" is given twice on this line`},
 	}
 	for _, c := range cases {

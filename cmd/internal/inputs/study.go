@@ -508,7 +508,13 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 			}
 			return []float64{f}, nil
 		}
-		out, err := ParseFloatList(key, v.Value)
+		// The file's line and key name the value: the message gives the
+		// file's (or the table cell's) way of writing it, not the flag's.
+		sep, example := "separated by commas", key+": ["+strings.ReplaceAll(listExample(key), ",", ", ")+"]"
+		if v.LineComment == tableCell {
+			sep, example = "separated by ';'", strings.ReplaceAll(listExample(key), ",", ";")
+		}
+		out, err := parseFloatList(v.Value, "", sep, example)
 		if err != nil {
 			return nil, fmt.Errorf("%w: %w", ErrBadValue, noPrefix{err})
 		}
@@ -624,6 +630,14 @@ func ParseNamedPath(s string) (name, path string, err error) {
 // list. An empty item, a non-number, NaN or an infinity is an error naming
 // the flag and the item.
 func ParseFloatList(flag, s string) ([]float64, error) {
+	return parseFloatList(s, "--"+flag+": ", "separated by commas", "--"+flag+"="+listExample(flag))
+}
+
+// parseFloatList is ParseFloatList with the words of its messages: where
+// names the value ("--e: ", or "" where a study file's line and key say
+// it), sep how the numbers are separated there and example is a whole
+// example of the value as written there.
+func parseFloatList(s, where, sep, example string) ([]float64, error) {
 	if strings.TrimSpace(s) == "" {
 		return nil, nil
 	}
@@ -632,13 +646,13 @@ func ParseFloatList(flag, s string) ([]float64, error) {
 	for i, p := range parts {
 		p = strings.TrimSpace(p)
 		if p == "" {
-			return nil, fmt.Errorf("%w: --%s: item %d of %s is empty; give numbers separated by commas, "+
-				"for example --%s=%s", ErrFloatList, flag, i+1, shown(s), flag, listExample(flag))
+			return nil, fmt.Errorf("%w: %sitem %d of %s is empty; give numbers %s, "+
+				"for example %s", ErrFloatList, where, i+1, shown(s), sep, example)
 		}
 		v, err := parseNumber(p, false)
 		if err != nil {
-			return nil, fmt.Errorf("%w: --%s: item %d %s is not a finite number; give numbers separated by commas "+
-				"with a dot as decimal separator, for example --%s=%s", ErrFloatList, flag, i+1, shown(p), flag, listExample(flag))
+			return nil, fmt.Errorf("%w: %sitem %d %s is not a finite number; give numbers %s "+
+				"with a dot as decimal separator, for example %s", ErrFloatList, where, i+1, shown(p), sep, example)
 		}
 		out = append(out, v)
 	}

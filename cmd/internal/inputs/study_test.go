@@ -170,7 +170,10 @@ func TestParseStudyErrors(t *testing.T) {
 		{"empty path", "out: \"\"\n", ErrBadValue, 1, "out", []string{"path is empty"}},
 		{"bad list item names its line", "region-buffers:\n  - 10\n  - ten\n", ErrBadValue, 3, "region-buffers", []string{`item 2: "ten" is not a number`}},
 		{"nested list item", "e: [[1]]\n", ErrBadValue, 1, "e", []string{"item 1 is a list"}},
-		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"--e: item 2", "is empty"}},
+		// A study file's list is written as the file writes it, not as
+		// the flag (--e=...) is: the line and key name it already.
+		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"not a list of numbers: item 2", "is empty", "for example e: [0.05, 0.1]"}},
+		{"bad list item", "region-buffers: 10,x\n", ErrFloatList, 1, "region-buffers", []string{"item 2 \"x\" is not a finite number", "for example region-buffers: [10, 25, 50]"}},
 		{"mapping for list", "e:\n  a: 1\n", ErrBadValue, 2, "e", []string{"expected a list of numbers"}},
 		{"model without =", "model:\n  - gbm.tif\n", ErrNamedPath, 2, "model", []string{`"gbm.tif" has no '='`, "gbm=models/gbm.tif"}},
 		{"model bad name", "model:\n  - ok=a.tif\n  - \"my model=b.tif\"\n", ErrNamedPath, 3, "model", []string{`name "my model"`}},
