@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -204,14 +205,7 @@ func TestSummaryCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var b bytes.Buffer
-	if err := s.WriteCSV(&b); err != nil {
-		t.Fatal(err)
-	}
-	recs, err := csv.NewReader(&b).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := csvRecords(t, s.WriteCSV)
 	if !slices.Equal(recs[0], summaryColumns) {
 		t.Fatalf("header %v", recs[0])
 	}
@@ -247,14 +241,7 @@ func TestSummaryCSV(t *testing.T) {
 	if z := recs[7]; z[col["test_points"]] != "" || z[col["auc_diff_points"]] != "0" {
 		t.Errorf("zeta test point columns %q", z)
 	}
-	var v bytes.Buffer
-	if err := s.WriteVerdictsCSV(&v); err != nil {
-		t.Fatal(err)
-	}
-	vr, err := csv.NewReader(&v).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	vr := csvRecords(t, s.WriteVerdictsCSV)
 	if len(vr) != 1+6 || vr[6][0] != "zeta" || vr[6][5] != string(JudgementRobust) {
 		t.Errorf("verdicts csv %q", vr)
 	}
@@ -690,20 +677,13 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 	}
 	for _, c := range []struct {
 		name   string
-		write  func(*bytes.Buffer) error
+		write  func(io.Writer) error
 		column string
 	}{
-		{"summary.csv", func(b *bytes.Buffer) error { return s.WriteCSV(b) }, "auc_diff_not_judged_reason"},
-		{"summary_verdicts.csv", func(b *bytes.Buffer) error { return s.WriteVerdictsCSV(b) }, "not_judged_reason"},
+		{"summary.csv", s.WriteCSV, "auc_diff_not_judged_reason"},
+		{"summary_verdicts.csv", s.WriteVerdictsCSV, "not_judged_reason"},
 	} {
-		var b bytes.Buffer
-		if err := c.write(&b); err != nil {
-			t.Fatal(err)
-		}
-		recs, err := csv.NewReader(&b).ReadAll()
-		if err != nil {
-			t.Fatal(err)
-		}
+		recs := csvRecords(t, c.write)
 		col := slices.Index(recs[0], c.column)
 		want := map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed",
 			"undef": "no paired difference from the base extent could be formed: the metric is undefined on the base extent"}
@@ -728,14 +708,7 @@ func TestSummaryWarnings(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var b bytes.Buffer
-	if err := s.WriteCSV(&b); err != nil {
-		t.Fatal(err)
-	}
-	recs, err := csv.NewReader(&b).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := csvRecords(t, s.WriteCSV)
 	col := slices.Index(recs[0], "warnings")
 	if col < 0 {
 		t.Fatalf("summary.csv has no warnings column: %v", recs[0])
@@ -771,4 +744,19 @@ func TestSummaryWarnings(t *testing.T) {
 	if page, err := quiet.page(nil); err != nil || bytes.Contains(page, []byte(`id="warnings"`)) {
 		t.Errorf("a batch without warnings has a warnings section (err %v)", err)
 	}
+}
+
+// csvRecords writes one of the summary's CSV files with write and reads
+// it back as records.
+func csvRecords(t *testing.T, write func(io.Writer) error) [][]string {
+	t.Helper()
+	var b bytes.Buffer
+	if err := write(&b); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return recs
 }

@@ -1,8 +1,6 @@
 package report
 
 import (
-	"bytes"
-	"encoding/csv"
 	"encoding/json"
 	"strings"
 	"testing"
@@ -249,14 +247,7 @@ func TestBatchNotJudgedReason(t *testing.T) {
 		t.Fatal(err)
 	}
 	const points = "too few common test points: 3, our cut-off 10"
-	var b bytes.Buffer
-	if err := s.WriteCSV(&b); err != nil {
-		t.Fatal(err)
-	}
-	recs, err := csv.NewReader(&b).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := csvRecords(t, s.WriteCSV)
 	col := map[string]int{}
 	for i, c := range recs[0] {
 		col[c] = i
@@ -286,13 +277,7 @@ func TestBatchNotJudgedReason(t *testing.T) {
 			t.Errorf("page row of %s: %q", row.Model, pr.Interval)
 		}
 	}
-	b.Reset()
-	if err := s.WriteVerdictsCSV(&b); err != nil {
-		t.Fatal(err)
-	}
-	if recs, err = csv.NewReader(&b).ReadAll(); err != nil {
-		t.Fatal(err)
-	}
+	recs = csvRecords(t, s.WriteVerdictsCSV)
 	col = map[string]int{}
 	for i, c := range recs[0] {
 		col[c] = i
