@@ -13,8 +13,9 @@ import (
 
 // TestBatchForceIntoFolderWithoutMarker: a study folder that exists
 // without a completion marker (here holding a file of the user's) is
-// refused without --force, with advice that works: the batch's --force
-// then runs the study into it and keeps the user's file.
+// refused without --force, with advice that works (the study's line and
+// the batch's closing line both name --force): the batch's --force then
+// runs the study into it and keeps the user's file.
 func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
 	s := sharedStudy(t)
 	table := batchTable(t, s)
@@ -32,6 +33,12 @@ func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
 	if code != 1 || !strings.Contains(se, "--force") {
 		t.Fatalf("without --force: exit %d, want 1 with advice to add --force: %s", code, se)
 	}
+	// The closing line too: it said that running the same command again
+	// retries the study, which fails the same way.
+	if !strings.Contains(se, "--force runs them again (their folders hold files but no completion marker") ||
+		strings.Contains(se, "running the same command again retries them") {
+		t.Errorf("without --force: the closing line does not say --force runs it again:\n%s", se)
+	}
 	_, se, code = runBin(t, "batch", table, "--out", out, "--only", "beta", "--quiet", "--force")
 	if code != 0 {
 		t.Fatalf("with --force: exit %d, want 0: %s", code, se)
@@ -39,8 +46,10 @@ func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
 	if b, err := os.ReadFile(mine); err != nil || string(b) != "mine" {
 		t.Errorf("the user's file: %q, %v; want it kept", b, err)
 	}
-	if _, err := os.Stat(filepath.Join(out, "beta", "results.json")); err != nil {
-		t.Errorf("no results after batch --force: %v", err)
+	for _, f := range []string{"results.json", ".areasweep-done"} {
+		if _, err := os.Stat(filepath.Join(out, "beta", f)); err != nil {
+			t.Errorf("no %s after batch --force: %v", f, err)
+		}
 	}
 }
 

@@ -298,50 +298,6 @@ func TestBatchFoldersHonourUmask(t *testing.T) {
 	}
 }
 
-// TestBatchFolderWithoutMarker: a study whose folder holds files but no
-// completion marker (the user's, or a run's files whose marker was
-// removed) is refused by its run without --force. The batch's closing
-// line used to say that running the same command again retries it, which
-// fails again the same way: it now says --force runs it again, and
-// --force does (replacing areasweep's files only: the user's file stays).
-func TestBatchFolderWithoutMarker(t *testing.T) {
-	_, table := inputsStudy(t)
-	out := filepath.Join(t.TempDir(), "runs")
-	if _, se, code := runBin(t, "batch", table, "--out", out); code != 0 {
-		t.Fatalf("first run: exit %d: %s", code, se)
-	}
-	for _, id := range []string{"a", "b"} {
-		if err := os.Remove(filepath.Join(out, id, ".areasweep-done")); err != nil {
-			t.Fatal(err)
-		}
-	}
-	mine := filepath.Join(out, "a", "notes.txt")
-	if err := os.WriteFile(mine, []byte("mine\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	_, se, code := runBin(t, "batch", table, "--out", out)
-	if code != 1 {
-		t.Fatalf("without markers: exit %d, want 1: %s", code, se)
-	}
-	for _, w := range []string{"2 of 2 studies failed", "exists and is not empty; add --force", "--force runs them again (their folders hold files but no completion marker"} {
-		if !strings.Contains(se, w) {
-			t.Errorf("without markers: stderr lacks %q:\n%s", w, se)
-		}
-	}
-	if strings.Contains(se, "running the same command again retries them") {
-		t.Errorf("without markers: the closing line says a rerun retries them:\n%s", se)
-	}
-	if _, se, code := runBin(t, "batch", table, "--out", out, "--force"); code != 0 {
-		t.Fatalf("--force: exit %d: %s", code, se)
-	}
-	if b, err := os.ReadFile(mine); err != nil || string(b) != "mine\n" {
-		t.Errorf("--force changed the user's file: %q, %v", b, err)
-	}
-	if _, err := os.Stat(filepath.Join(out, "a", ".areasweep-done")); err != nil {
-		t.Errorf("--force left a without a marker: %v", err)
-	}
-}
-
 // TestBatchSummaryOnlyClosingLine: --summary-only runs no study, so its
 // closing line must not say that running the same command again retries
 // the failed studies, or that --force (with the same command) runs them:
