@@ -246,18 +246,7 @@ func TestBadRastersAndLayers(t *testing.T) {
 	srcTIF := filepath.Join(srcDir, "src.tif")
 	os.WriteFile(srcTIF, plain, 0o644)
 	viaVRT := filepath.Join(f.dir, "via.vrt")
-	{
-		src, err := godal.Open(srcTIF)
-		if err != nil {
-			t.Fatal(err)
-		}
-		v, err := src.Translate(viaVRT, []string{"-of", "VRT"})
-		if err != nil {
-			t.Fatal(err)
-		}
-		v.Close()
-		src.Close()
-	}
+	virtualRaster(t, srcTIF, viaVRT)
 
 	// A GeoPackage of two raster tables: GDAL sees two subdatasets.
 	twoRasters := filepath.Join(f.dir, "two.gpkg")

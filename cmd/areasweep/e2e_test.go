@@ -949,3 +949,30 @@ func TestMultiBandModelWarns(t *testing.T) {
 		t.Error("the merged report does not show the warning about the bands")
 	}
 }
+
+// virtualRaster writes vrt, a GDAL virtual raster (VRT) of the raster src
+// (gdal_translate -of VRT).
+func virtualRaster(t *testing.T, src, vrt string) {
+	t.Helper()
+	in, err := godal.Open(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer in.Close()
+	v, err := in.Translate(vrt, []string{"-of", "VRT"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	v.Close()
+}
+
+// replaceArg returns args with every argument equal to old replaced by
+// new.
+func replaceArg(args []string, old, new string) []string {
+	for k := range args {
+		if args[k] == old {
+			args[k] = new
+		}
+	}
+	return args
+}

@@ -12,8 +12,6 @@ import (
 	"syscall"
 	"testing"
 	"time"
-
-	"github.com/airbusgeo/godal"
 )
 
 // TestMergeRefusesGoneInput: an input the shards recorded by its absolute
@@ -132,12 +130,7 @@ func TestShardRefusesPipedInput(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
-			args := append(s.shardArgs(t, out), "--shard", "1/2")
-			for k := range args {
-				if args[k] == s.occ {
-					args[k] = tc.path
-				}
-			}
+			args := replaceArg(append(s.shardArgs(t, out), "--shard", "1/2"), s.occ, tc.path)
 			// A shard that reads the named pipe would wait for a writer:
 			// it is stopped after a minute.
 			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
@@ -201,12 +194,7 @@ func TestRunPipedOccurrences(t *testing.T) {
 	for _, tc := range []struct{ name, path string }{{"descriptor", "/dev/fd/3"}, {"named pipe", fifo}} {
 		t.Run(tc.name, func(t *testing.T) {
 			out := filepath.Join(s.dir, "out-"+strings.ReplaceAll(tc.name, " ", "-"))
-			args := s.args(out)
-			for k := range args {
-				if args[k] == s.occ {
-					args[k] = tc.path
-				}
-			}
+			args := replaceArg(s.args(out), s.occ, tc.path)
 			ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
 			defer cancel()
 			cmd := exec.CommandContext(ctx, areasweepBin, args...)
@@ -279,17 +267,8 @@ func TestMergeRefusesChangedVRTSource(t *testing.T) {
 	}
 	srcPath := filepath.Join(s.dir, "source.tif")
 	os.WriteFile(srcPath, data, 0o644)
-	src, err := godal.Open(srcPath)
-	if err != nil {
-		t.Fatal(err)
-	}
 	vrt := filepath.Join(s.dir, "virtual.vrt")
-	v, err := src.Translate(vrt, []string{"-of", "VRT"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	v.Close()
-	src.Close()
+	virtualRaster(t, srcPath, vrt)
 	shards := runShards(t, s, filepath.Join(s.dir, "shards"), 2, "--model", "v="+vrt)
 	// One byte more at the end of the source: another SHA-256, the same
 	// raster for GDAL.

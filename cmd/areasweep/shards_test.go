@@ -11,8 +11,6 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/airbusgeo/godal"
-
 	"areasweep/report"
 )
 
@@ -462,17 +460,8 @@ func TestMergeRefusesChangedSidecars(t *testing.T) {
 // beside the VRT tells it).
 func TestVirtualRasterSourcesRecorded(t *testing.T) {
 	s := newSmallStudy(t)
-	src, err := godal.Open(s.model)
-	if err != nil {
-		t.Fatal(err)
-	}
 	vrt := filepath.Join(s.dir, "virtual.vrt")
-	v, err := src.Translate(vrt, []string{"-of", "VRT"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	v.Close()
-	src.Close()
+	virtualRaster(t, s.model, vrt)
 	out := filepath.Join(s.dir, "out")
 	if _, se, code := runBin(t, s.args(out, "--model", "v="+vrt)...); code != 0 {
 		t.Fatalf("exit %d: %s", code, se)
