@@ -32,7 +32,35 @@ type pamBand struct {
 	Scale  *string `xml:"Scale"`
 }
 
-// auxProblem says what the raster's auxiliary file path+".aux.xml" sets
+// auxReport is what a raster's auxiliary file path+".aux.xml" holds that
+// the run must tell (auxFile): what it sets that the raster does not
+// (auxProblem, with declared), or, for a file that is not well-formed,
+// what it appears to set (auxBroken).
+type auxReport struct {
+	what     string
+	declared bool
+	broken   string
+}
+
+// auxFile reads the raster's auxiliary file path+".aux.xml" once and
+// reports it: nothing when there is none or it cannot be read, auxBroken's
+// report when it is not well-formed, else auxProblem's.
+func auxFile(path string) auxReport {
+	data, err := os.ReadFile(path + ".aux.xml")
+	if err != nil {
+		return auxReport{}
+	}
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	pam, err := decodePAM(data)
+	if err != nil {
+		return auxReport{broken: auxBroken(data)}
+	}
+	what, declared := auxProblem(path, data, pam)
+	return auxReport{what: what, declared: declared}
+}
+
+// auxProblem says what the raster's auxiliary file path+".aux.xml" (data,
+// decoded as pam) sets
 // that the raster itself does not, or "" when there is no such file or it
 // sets nothing of the kind. areasweep turns GDAL's auxiliary files off (so
 // that reading an input never writes one beside it; extent.Register), so
@@ -47,17 +75,8 @@ type pamBand struct {
 // the declaration for the document's root), so GDAL's tools would not
 // apply what it sets until that line is removed. It is named all the
 // same: the user meant the values it holds.
-func auxProblem(path string) (what string, declared bool) {
-	data, err := os.ReadFile(path + ".aux.xml")
-	if err != nil {
-		return "", false
-	}
-	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+func auxProblem(path string, data []byte, pam pamDataset) (what string, declared bool) {
 	declared = bytes.HasPrefix(bytes.TrimLeft(data, " \t\r\n"), []byte("<?xml"))
-	pam, err := decodePAM(data)
-	if err != nil {
-		return "", false
-	}
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
 		return "", false // OpenGrid reports it
@@ -150,19 +169,12 @@ var pamTags = []struct{ tag, what string }{
 // short, edited by hand) but holds the elements of a CRS, georeferencing,
 // nodata value, scale or offset. GDAL skips such a file (and areasweep
 // reads none), so what it was meant to set is not applied; the file's
-// other content (statistics) does not matter. "" when there is no such
-// file, it is read whole, or it names none of those elements. Which of
+// other content (statistics) does not matter. "" when it names none of
+// those elements. Which of
 // them the raster holds already cannot be told from a broken file, so the
-// run warns rather than refuses.
-func auxBroken(path string) string {
-	data, err := os.ReadFile(path + ".aux.xml")
-	if err != nil {
-		return ""
-	}
-	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
-	if _, err := decodePAM(data); err == nil {
-		return ""
-	}
+// run warns rather than refuses. data is the file, which auxFile found
+// not well-formed.
+func auxBroken(data []byte) string {
 	var set []string
 	for _, t := range pamTags {
 		if bytes.Contains(data, []byte(t.tag+">")) || bytes.Contains(data, []byte(t.tag+" ")) {

@@ -95,7 +95,8 @@ func TestAuxProblem(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
-			got, declared := auxProblem(p)
+			r := auxFile(p)
+			got, declared := r.what, r.declared
 			if want := strings.Contains(tc.aux, "<?xml") && len(tc.want) > 0; declared != want {
 				t.Errorf("declared = %v, want %v", declared, want)
 			}
@@ -170,7 +171,7 @@ func TestAuxProblemOtherRasters(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			got, _ := auxProblem(p)
+			got := auxFile(p).what
 			if tc.want == "" && got != "" || !strings.Contains(got, tc.want) {
 				t.Errorf("auxProblem = %q, want %q", got, tc.want)
 			}
@@ -203,7 +204,7 @@ func TestAuxBroken(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
-			if got := auxBroken(p); got != tc.want {
+			if got := auxFile(p).broken; got != tc.want {
 				t.Errorf("auxBroken = %q, want %q", got, tc.want)
 			}
 		})

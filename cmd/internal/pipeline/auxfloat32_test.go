@@ -37,7 +37,7 @@ func TestAuxProblemFloat32NoData(t *testing.T) {
 			if err := os.WriteFile(filepath.Join(dir, "m.tif.aux.xml"), []byte(aux), 0o644); err != nil {
 				t.Fatal(err)
 			}
-			if got, _ := auxProblem(p); got != tc.want {
+			if got := auxFile(p).what; got != tc.want {
 				t.Errorf("auxProblem = %q, want %q", got, tc.want)
 			}
 		})

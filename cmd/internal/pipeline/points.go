@@ -86,7 +86,8 @@ func (s *Study) checkFiles() error {
 // model and null lies on the same grid.
 func (s *Study) openGrid() error {
 	for i, m := range s.models {
-		if what, declared := auxProblem(m.Path); what != "" {
+		aux := auxFile(m.Path)
+		if what, declared := aux.what, aux.declared; what != "" {
 			out := strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + "_own.tif"
 			first := ""
 			if declared {
@@ -104,7 +105,7 @@ func (s *Study) openGrid() error {
 			return fault.BadInput(fmt.Errorf("%s: %s.aux.xml sets %s of %s, which the raster itself does not hold; areasweep never reads .aux.xml files (nor writes them beside inputs), so it would read the cells as if that file were not there: "+
 				"%scopy the raster with GDAL's own tools, which read the .aux.xml and write what it sets into the copy (e.g. gdal_translate %s %s), and give %s%s", m.who(), m.Path, what, m.Path, first, shellArg(m.Path), shellArg(out), out, vrt))
 		}
-		if what := auxBroken(m.Path); what != "" {
+		if what := aux.broken; what != "" {
 			s.warn(fmt.Sprintf("%s: %s.aux.xml appears to set %s of %s, but it is not well-formed XML, so GDAL skips it (and areasweep reads no .aux.xml files): the cells are read as if it were not there; if it was meant to set them, repair the file, copy the raster with GDAL's own tools (e.g. gdal_translate %s %s), and give the copy",
 				m.who(), m.Path, what, m.Path, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_own.tif")))
 		}
