@@ -376,18 +376,30 @@ func tooFewText(ds []ExtentDifference) string {
 // notJudgedWhy says what the differences of ds that are not judged lack:
 // "too few common test points", "too few resamples" or both.
 func notJudgedWhy(ds []ExtentDifference) string {
-	var pts, res bool
-	for _, d := range ds {
-		pts = pts || (d.Defined && d.Position == positionTooFew)
-		res = res || (d.Defined && d.Position == positionTooFewResamples)
-	}
+	pts, res := notJudgedCounts(ds)
 	switch {
-	case pts && res:
+	case pts > 0 && res > 0:
 		return "too few common test points or resamples"
-	case res:
+	case res > 0:
 		return "too few resamples"
 	}
 	return "too few common test points"
+}
+
+// notJudgedCounts counts the defined differences of ds not judged: on
+// fewer than MinPairedPoints common test points (points), and from fewer
+// than MinPercentileResamples formed resamples (resamples).
+func notJudgedCounts(ds []ExtentDifference) (points, resamples int) {
+	for _, d := range ds {
+		switch {
+		case !d.Defined:
+		case d.Position == positionTooFew:
+			points++
+		case d.Position == positionTooFewResamples:
+			resamples++
+		}
+	}
+	return points, resamples
 }
 
 // largestJudged is the index in ds of the defined difference with the
@@ -503,20 +515,12 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	for i, ma := range a.models {
 		for _, mb := range a.models[i+1:] {
 			r := ModelRanking{Metric: m.Key, Model: ma, Other: mb, Diffs: []ExtentDifference{}}
-			tooFew, tooFewB := 0, 0
 			for _, e := range a.extents {
 				if a.score(ma, e.ID) == nil || a.score(mb, e.ID) == nil {
 					continue
 				}
 				d := a.difference(m, PairedKindModel, ma, e.ID, mb, e.ID)
 				r.Diffs = append(r.Diffs, d)
-				switch {
-				case !d.Defined:
-				case d.Position == positionTooFew:
-					tooFew++
-				case d.Position == positionTooFewResamples:
-					tooFewB++
-				}
 				if !d.Defined || d.notJudged() {
 					continue
 				}
@@ -534,6 +538,7 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 					r.WithinNoise++
 				}
 			}
+			tooFew, tooFewB := notJudgedCounts(r.Diffs)
 			switch {
 			case r.Extents == 0 && tooFew > 0 && tooFewB == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, MinPairedPoints)
