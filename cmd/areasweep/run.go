@@ -40,14 +40,6 @@ type RunOptions struct {
 // most extent.MaxMembers members anyway.
 const maxBuffers = extent.MaxMembers
 
-// maxBufferKm bounds each buffer distance: no two points of the WGS84
-// ellipsoid lie farther apart than half a meridian, 20,003.93 km (the
-// geodesic from pole to pole; pyproj's Geod(ellps="WGS84").inv(0, 90,
-// 0, -90)), rounded up. A larger buffer takes every cell (or, shrinking,
-// none) and is most likely metres given as km; its id would spell the
-// number out in full (1e300 made an id of 300 digits).
-const maxBufferKm = 20004
-
 // defaultRunOptions are the settings used when neither flag nor file says.
 func defaultRunOptions() RunOptions {
 	return RunOptions{Options: pipeline.Options{Values: settings.Defaults()}}
@@ -473,8 +465,8 @@ func (o *RunOptions) validateLists() error {
 		v    []float64
 	}{{"region-buffers", o.RegionBuffers}, {"point-buffers", o.PointBuffers}, {"hull-buffers", o.HullBuffers}} {
 		for _, d := range lst.v {
-			if math.Abs(d) > maxBufferKm {
-				return fmt.Errorf("--%s value %g km: no two places on Earth lie more than %d km apart; give distances in km (e.g. 50 for 50,000 m); a buffer that large takes every cell (or, shrinking, none), and the family's whole_raster already holds every cell", lst.name, d, maxBufferKm)
+			if math.Abs(d) > settings.MaxBufferKm {
+				return fmt.Errorf("--%s value %g km: no two places on Earth lie more than %d km apart; give distances in km (e.g. 50 for 50,000 m); a buffer that large takes every cell (or, shrinking, none), and the family's whole_raster already holds every cell", lst.name, d, settings.MaxBufferKm)
 			}
 		}
 	}

@@ -132,6 +132,14 @@ const (
 	// MaxWorkers bounds --workers: more goroutines than this only add
 	// accumulators to merge.
 	MaxWorkers = 256
+	// MaxBufferKm bounds each buffer distance, and is not our choice: no
+	// two points of the WGS84 ellipsoid lie farther apart than half a
+	// meridian, 20,003.93 km (the geodesic from pole to pole; pyproj's
+	// Geod(ellps="WGS84").inv(0, 90, 0, -90)), rounded up. A larger buffer
+	// takes every cell (or, shrinking, none) and is most likely metres
+	// given as km; its id would spell the number out in full (1e300 made
+	// an id of 300 digits).
+	MaxBufferKm = 20004
 )
 
 // Table lists every setting. The study-file keys come first, in the order
