@@ -49,5 +49,5 @@
 //
 // Errors are classified with package fault: an input error (exit 2,
 // nothing written), an internal error (a bug, exit 3), or any other (exit
-// 1). WriteFailed words a failure while writing the outputs.
+// 1). writeFailed words a failure while writing the outputs.
 package pipeline

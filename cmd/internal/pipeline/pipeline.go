@@ -2,10 +2,12 @@ package pipeline
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -198,7 +200,7 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 			return nil, err
 		}
 		if err := outfile.Write(filepath.Join(s.stage, "extents.csv"), extentsCSV(s.res.Extents), 0o666); err != nil {
-			return nil, WriteFailed(err)
+			return nil, s.writeFailed(err)
 		}
 	} else if err := s.finishScores(); err != nil {
 		return nil, err
@@ -206,7 +208,7 @@ func (s *Study) Finish(ctx context.Context) (*report.Results, error) {
 	s.libraryMessages()
 	s.logf("run finished in %.2f s (before moving the outputs into place)", time.Since(s.start).Seconds())
 	if err := outfile.Write(filepath.Join(s.stage, "run.log"), []byte(s.log.String()), 0o666); err != nil {
-		return nil, WriteFailed(err)
+		return nil, s.writeFailed(err)
 	}
 	if err := s.seal(); err != nil {
 		return nil, err
@@ -223,7 +225,7 @@ func (s *Study) seal() error {
 		return nil
 	}
 	if err := s.io.Seal(s.stage); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	return nil
 }
@@ -254,7 +256,7 @@ func (s *Study) finishScores() error {
 	if fault.IsInternal(ferr) {
 		return ferr
 	} else if ferr != nil {
-		return WriteFailed(ferr)
+		return s.writeFailed(ferr)
 	}
 	if err != nil {
 		return err
@@ -277,7 +279,7 @@ func (s *Study) finishScores() error {
 		return rerr
 	}
 	if err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	return nil
 }
@@ -313,13 +315,13 @@ func (s *Study) writeResults() error {
 		if encErr != nil && !fileErr {
 			return fault.Internal(err)
 		}
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	if err := outfile.Write(filepath.Join(s.stage, "scores.csv"), scoresCSV(s.res), 0o666); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	if err := writeOmittedGPKG(filepath.Join(s.stage, "omitted_points.gpkg"), s.res); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	return nil
 }
@@ -377,9 +379,20 @@ func (s *Study) warn(msg string) {
 	s.logf("warning: %s", msg)
 }
 
-// WriteFailed words an error while writing the outputs (exit 1).
-func WriteFailed(err error) error {
-	return fmt.Errorf("writing the results failed: %s; nothing in --out was changed", gdalmsg.Cause(outdir.Cause(err).Error()))
+// writeFailed words an error while writing the outputs (exit 1), naming
+// the output folder; a full disk or quota also says what to do.
+func (s *Study) writeFailed(err error) error {
+	return writeFailedIn(s.o.Out, err)
+}
+
+// writeFailedIn is writeFailed for the output folder out.
+func writeFailedIn(out string, err error) error {
+	cause := outdir.Cause(err)
+	what := gdalmsg.Cause(cause.Error())
+	if errors.Is(cause, syscall.ENOSPC) || errors.Is(cause, syscall.EDQUOT) {
+		what += " (free some space on that disk, or give --out a folder on another one)"
+	}
+	return fmt.Errorf("writing the results into %s failed: %s; nothing in it was changed", out, what)
 }
 
 // libraryMessages moves the messages GDAL and its libraries raised outside
@@ -399,7 +412,7 @@ func (s *Study) libraryMessages() {
 // extents.tif.
 func (s *Study) writeFamily() error {
 	if err := s.timed("extents.gpkg written", s.writeFamilyFiles); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	return nil
 }

@@ -208,12 +208,12 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 		return fault.Internal(err)
 	}
 	if err := outfile.Write(filepath.Join(s.stage, ShardFileName(i, n)), data, 0o666); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	s.libraryMessages()
 	s.logf("shard finished in %.2f s (before moving the partial file into place)", time.Since(s.start).Seconds())
 	if err := outfile.Write(filepath.Join(s.stage, ShardLogName(i, n)), []byte(s.log.String()), 0o666); err != nil {
-		return WriteFailed(err)
+		return s.writeFailed(err)
 	}
 	if err := s.seal(); err != nil {
 		return err
