@@ -57,6 +57,13 @@ with --force.`,
 	return cmd
 }
 
+// stageReport and writeReport are outdir.Stage and report.Write; tests
+// replace them to meet a full disk.
+var (
+	stageReport = outdir.Stage
+	writeReport = report.Write
+)
+
 func reportRun(o *ReportOptions) error {
 	if st, err := os.Stat(o.Dir); err == nil && st.Mode().IsRegular() {
 		if filepath.Base(o.Dir) != "results.json" {
@@ -118,14 +125,21 @@ func reportRun(o *ReportOptions) error {
 	o.logf("analysis in %.2f s", time.Since(start).Seconds())
 	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
 	stoppedNote.Store(&note)
-	st2, err := outdir.Stage(o.Dir)
+	st2, err := stageReport(o.Dir)
+	if err != nil && outdir.DiskFull(err) {
+		return fmt.Errorf("%s: cannot write in it (%v): free some space on that disk, or re-render the report of a copy of the folder on another one; the report files in it were left as they were", o.Dir, outdir.Cause(err))
+	}
 	if err != nil {
 		return fault.BadInput(fmt.Errorf("%s: cannot write in it (%v); re-render the report of a folder you can write to, e.g. a copy of it", o.Dir, outdir.Cause(err)))
 	}
 	defer st2.Abort()
 	start = time.Now()
-	if err := report.Write(st2.Path, r); err != nil {
-		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
+	if err := writeReport(st2.Path, r); err != nil {
+		what := outdir.Cause(err).Error()
+		if outdir.DiskFull(err) {
+			what += " (free some space on that disk, or re-render the report of a copy of the folder on another one)"
+		}
+		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", what, o.Dir)
 	}
 	o.logf("report written in %.2f s", time.Since(start).Seconds())
 	// A folder where a figure file goes (the names are known once

@@ -279,10 +279,29 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		if stage != "" {
 			os.RemoveAll(stage)
 		}
-		return fail(fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err))))
+		return fail(cannotWrite(out, where, err))
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// DiskFull reports whether err comes from a full disk or quota (ENOSPC,
+// EDQUOT): an outside failure (exit 1) that freeing space mends, not a
+// folder to refuse.
+func DiskFull(err error) bool {
+	c := Cause(err)
+	return errors.Is(c, syscall.ENOSPC) || errors.Is(c, syscall.EDQUOT)
+}
+
+// cannotWrite words a failure to write in where, the folder of --out or
+// the one it goes in, before the run wrote anything: a full disk says to
+// free space (exit 1), anything else (a read-only disk, a folder of
+// another user) is a refusal of --out (exit 2).
+func cannotWrite(out, where string, err error) error {
+	if DiskFull(err) {
+		return fmt.Errorf("--out %s: cannot write in %s (%w): free some space on that disk, or give --out a folder on another one; nothing was written", out, where, Cause(err))
+	}
+	return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
 }
 
 // visible drops areasweep's own hidden entries (a staging folder of a dead
@@ -385,6 +404,9 @@ func (d *Dir) makeParent(out string) error {
 		}
 	}
 	if err := os.MkdirAll(d.parent, MkdirPerm()); err != nil {
+		if DiskFull(err) {
+			return cannotWrite(out, filepath.Dir(d.parent), err)
+		}
 		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 	}
 	d.created = missing
@@ -409,7 +431,7 @@ func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
 		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
+			return cannotWrite(out, d.parent, err)
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())

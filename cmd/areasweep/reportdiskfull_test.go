@@ -1,0 +1,80 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/report"
+)
+
+// TestReportOnFullDisk: areasweep report on a folder whose disk is full,
+// when the staging folder is made or while the report is drawn (as met on
+// a tmpfs filled to its last block, and on one a little smaller than the
+// report needs), exits 1 saying to free space; the first was refused as
+// bad input (exit 2, "re-render the report of a folder you can write to")
+// and the second said no space left without what to do. A read-only
+// folder stays a refusal. The previous report and results.json are as
+// they were, with no staging folder left.
+func TestReportOnFullDisk(t *testing.T) {
+	full := &os.PathError{Op: "write", Path: "x", Err: syscall.ENOSPC}
+	for _, tc := range []struct {
+		name     string
+		stage    error
+		write    error
+		badInput bool
+	}{
+		{"full when staging", full, nil, false},
+		{"full while drawing", nil, full, false},
+		{"quota while drawing", nil, &os.PathError{Op: "write", Path: "x", Err: syscall.EDQUOT}, false},
+		{"read-only", &os.PathError{Op: "mkdirat", Path: "x", Err: syscall.EROFS}, nil, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			defer func(s func(string) (*outdir.Staged, error), w func(string, *report.Results) error) {
+				stageReport, writeReport = s, w
+			}(stageReport, writeReport)
+			if tc.stage != nil {
+				stageReport = func(string) (*outdir.Staged, error) { return nil, tc.stage }
+			}
+			if tc.write != nil {
+				writeReport = func(dir string, _ *report.Results) error {
+					os.WriteFile(filepath.Join(dir, "report.html"), []byte("half"), 0o644)
+					return tc.write
+				}
+			}
+			dir := t.TempDir()
+			sample := sampleResults(t)
+			os.WriteFile(filepath.Join(dir, "results.json"), []byte(sample), 0o644)
+			os.WriteFile(filepath.Join(dir, "report.html"), []byte("previous report"), 0o644)
+			var out bytes.Buffer
+			err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir, Force: true})
+			if err == nil {
+				t.Fatal("report succeeded")
+			}
+			if fault.IsBadInput(err) != tc.badInput {
+				t.Errorf("%v: bad input %v, want %v", err, fault.IsBadInput(err), tc.badInput)
+			}
+			if got := strings.Contains(err.Error(), "free some space"); got == tc.badInput {
+				t.Errorf("%q: advice on space %v, want %v", err, got, !tc.badInput)
+			}
+			if !strings.Contains(err.Error(), dir) {
+				t.Errorf("%q does not name %s", err, dir)
+			}
+			entries, _ := os.ReadDir(dir)
+			if len(entries) != 2 {
+				t.Errorf("%d entries left, want results.json and report.html", len(entries))
+			}
+			if b, _ := os.ReadFile(filepath.Join(dir, "report.html")); string(b) != "previous report" {
+				t.Errorf("report.html holds %q", b)
+			}
+			if b, _ := os.ReadFile(filepath.Join(dir, "results.json")); string(b) != sample {
+				t.Error("results.json changed")
+			}
+		})
+	}
+}

@@ -1,0 +1,72 @@
+package outdir
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+
+	"areasweep/cmd/internal/fault"
+)
+
+// TestOpenOnFullDisk: a disk too full for the staging folder's owner record
+// (as a run met on a tmpfs filled to its last block) is an outside failure,
+// exit 1, that says to free space; it was refused as bad input (exit 2)
+// with "choose a folder you can write to". A read-only disk stays a
+// refusal. Either way nothing is left: no --out, lock or staging folder,
+// and a previous run's file is as it was.
+func TestOpenOnFullDisk(t *testing.T) {
+	for _, tc := range []struct {
+		name     string
+		cause    syscall.Errno
+		badInput bool
+	}{
+		{"disk full", syscall.ENOSPC, false},
+		{"quota", syscall.EDQUOT, false},
+		{"read-only", syscall.EROFS, true},
+	} {
+		for _, exists := range []bool{false, true} {
+			t.Run(tc.name, func(t *testing.T) {
+				defer func(f func(string, []byte, os.FileMode) error) { writeFile = f }(writeFile)
+				writeFile = func(name string, _ []byte, _ os.FileMode) error {
+					return &os.PathError{Op: "open", Path: name, Err: tc.cause}
+				}
+				dir := t.TempDir()
+				out := filepath.Join(dir, "sp1")
+				prev := filepath.Join(out, "results.json")
+				if exists {
+					if err := os.Mkdir(out, 0o755); err != nil {
+						t.Fatal(err)
+					}
+					if err := os.WriteFile(prev, []byte("previous run"), 0o644); err != nil {
+						t.Fatal(err)
+					}
+				}
+				_, err := Open(out, true, nil)
+				if err == nil {
+					t.Fatal("Open succeeded")
+				}
+				if fault.IsBadInput(err) != tc.badInput {
+					t.Errorf("%v: bad input %v, want %v", err, fault.IsBadInput(err), tc.badInput)
+				}
+				if got := strings.Contains(err.Error(), "free some space"); got == tc.badInput {
+					t.Errorf("%q: advice on space %v, want %v", err, got, !tc.badInput)
+				}
+				if !strings.Contains(err.Error(), out) {
+					t.Errorf("%q does not name %s", err, out)
+				}
+				if l := leftovers(dir); len(l) > 0 {
+					t.Errorf("left %v", l)
+				}
+				if exists {
+					if b, err := os.ReadFile(prev); err != nil || string(b) != "previous run" {
+						t.Errorf("previous results.json: %q, %v", b, err)
+					}
+				} else if _, err := os.Lstat(out); err == nil {
+					t.Errorf("%s was created", out)
+				}
+			})
+		}
+	}
+}
