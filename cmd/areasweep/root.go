@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"log"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -99,6 +100,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	}()
 	extent.Configure()
 	gdalmsg.Install()
+	log.SetFlags(0)
+	log.SetOutput(gdalmsg.GoLog) // a Go library's log lines go to the run log, not the terminal
 	defer func() {
 		if r := recover(); r != nil {
 			outdir.AbortAll()
