@@ -78,3 +78,25 @@ func TestReportOnFullDisk(t *testing.T) {
 		})
 	}
 }
+
+// TestReportLineBreak: areasweep report on a folder whose path holds a line
+// break is refused on one line that says so, and the folder is left as it
+// was; the message said "cannot write in it (the path holds a line break);
+// re-render the report of a folder you can write to" with the line break
+// printed raw.
+func TestReportLineBreak(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "run\n1")
+	os.Mkdir(dir, 0o755)
+	os.WriteFile(filepath.Join(dir, "results.json"), []byte(sampleResults(t)), 0o644)
+	var out bytes.Buffer
+	err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir, Force: true})
+	if err == nil || !fault.IsBadInput(err) {
+		t.Fatalf("got %v, want bad input", err)
+	}
+	if msg := err.Error(); strings.Contains(msg, "\n") || !strings.Contains(msg, "holds a line break") {
+		t.Errorf("message %q", msg)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+		t.Errorf("%d entries left, want results.json only", len(entries))
+	}
+}

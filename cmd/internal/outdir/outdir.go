@@ -214,6 +214,9 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	if d.abs == d.parent {
 		return nil, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
 	}
+	if strings.ContainsAny(d.abs, "\n\r") {
+		return nil, fault.BadInput(LineBreakError("--out", out, d.abs))
+	}
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
 		return nil, err
 	}
@@ -283,6 +286,18 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// LineBreakError refuses a folder to write in (what: "--out", or the
+// report's folder) given as given whose absolute path abs holds a line
+// break: the owner record of its staging folder is one line per field. The
+// names are quoted, so that the message stays on one line.
+func LineBreakError(what, given, abs string) error {
+	where := fmt.Sprintf("%s %q", what, given)
+	if abs != given {
+		where += fmt.Sprintf(" (%q)", abs)
+	}
+	return fmt.Errorf("%s: the path holds a line break, which areasweep does not write under; choose a folder whose path has none", where)
 }
 
 // DiskFull reports whether err comes from a full disk or quota (ENOSPC,
