@@ -39,3 +39,29 @@ func TestOpenLineBreak(t *testing.T) {
 		t.Errorf("left %q", l)
 	}
 }
+
+// TestOpenPathTooLong: an --out whose path would give a GeoPackage written
+// in its staging folder a path longer than SQLite opens is refused before
+// the run (exit 2, nothing created), with the lengths. It ran to the end
+// and then failed with "writing the results into ... failed: create
+// /tmp/...", the cause (SQLite's "unable to open database file") cut off
+// past 240 characters (extents --out of 460 bytes). One of 70 bytes less
+// than the limit is taken.
+func TestOpenPathTooLong(t *testing.T) {
+	dir := t.TempDir()
+	seg := strings.Repeat("d", 200)
+	long := filepath.Join(dir, seg, seg, seg[:100], "out")
+	_, err := Open(long, false, nil)
+	if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "too long") || !strings.Contains(err.Error(), "504 bytes") {
+		t.Fatalf("Open of a %d-byte --out: %v, want bad input saying it is too long", len(long), err)
+	}
+	if _, err := os.Lstat(filepath.Join(dir, seg)); err == nil {
+		t.Errorf("created folders for a refused --out")
+	}
+	short := filepath.Join(dir, seg, strings.Repeat("s", (maxSQLitePath-70)-len(dir)-len(seg)-2))
+	d, err := Open(short, false, nil)
+	if err != nil {
+		t.Fatalf("Open of a %d-byte --out: %v", len(short), err)
+	}
+	d.Abort()
+}

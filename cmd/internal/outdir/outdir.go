@@ -220,6 +220,9 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
 		return nil, err
 	}
+	if n := d.longestStaged(); n > maxSQLitePath && !shard {
+		return nil, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
+	}
 	st, err := os.Stat(d.abs)
 	exists := err == nil
 	if exists {
@@ -286,6 +289,29 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// maxSQLitePath is the longest path of a file SQLite opens (its Unix
+// layer's 512 bytes, less room for the "-journal" suffix); GDAL's
+// GeoPackage driver then fails with "unable to open database file". Found
+// by opening databases with paths of 500 to 519 bytes (Python's sqlite3,
+// the system's SQLite): 504 opens, 505 does not.
+const maxSQLitePath = 504
+
+// longestStagedName is the longest path inside a staging folder of a file
+// SQLite opens: the demo's ecoregions (omitted_points.gpkg is 3 bytes
+// shorter).
+const longestStagedName = "/inputs/ecoregions.gpkg"
+
+// longestStaged is the length in bytes of the longest path of a GeoPackage
+// written in the staging folder: the folder's name ends in this process's
+// ID and a random number of at most 10 digits (os.MkdirTemp).
+func (d *Dir) longestStaged() int {
+	where, prefix := d.parent, "."+d.name+"."+stagePrefix[1:]
+	if st, err := os.Stat(d.abs); err == nil && st.IsDir() {
+		where, prefix = d.abs, stagePrefix
+	}
+	return len(where) + 1 + len(prefix) + len(strconv.Itoa(os.Getpid())) + 1 + 10 + len(longestStagedName)
 }
 
 // LineBreakError refuses a folder to write in (what: "--out", or the
