@@ -122,7 +122,11 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		// cobra's own refusal of a command it does not have.
 		err = fault.BadInput(fmt.Errorf("%w (see 'areasweep --help')", err))
 	}
-	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(fault.UserText(err), "\n"))
+	msg := strings.TrimRight(fault.UserText(err), "\n")
+	if _, werr := os.Getwd(); werr != nil && !strings.Contains(msg, outdir.CwdGone) {
+		msg += "; " + outdir.CwdGone // a relative path was most likely given
+	}
+	fmt.Fprintf(errOut, "areasweep: %s\n", msg)
 	switch {
 	case fault.IsBadInput(err):
 		return exitBadInput

@@ -207,7 +207,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
+		return nil, fault.BadInput(fmt.Errorf("--out %s is a relative path and %s", out, CwdGone))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
@@ -313,6 +313,10 @@ func (d *Dir) longestStaged() int {
 	}
 	return len(where) + 1 + len(prefix) + len(strconv.Itoa(os.Getpid())) + 1 + 10 + len(longestStagedName)
 }
+
+// CwdGone says that the current folder was removed (os.Getwd fails), with
+// what to do.
+const CwdGone = "the current folder no longer exists (removed after the shell entered it), so relative paths name nothing: cd to an existing folder, or give absolute paths"
 
 // LineBreakError refuses a folder to write in (what: "--out", or the
 // report's folder) given as given whose absolute path abs holds a line
