@@ -69,20 +69,27 @@ func runLocal(ctx context.Context, o *Options, w IO, studies []*study) error {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])
 		}
 	}
+	countFailed := func() int {
+		n := 0
+		for _, err := range errs {
+			if err != nil {
+				n++
+			}
+		}
+		return n
+	}
 	if len(o.Only) == 0 {
 		if err := writeSummary(o, studies, errs); err != nil {
+			if failed := countFailed(); failed > 0 && !fault.IsInternal(err) {
+				// The studies that failed are named all the same.
+				return fault.Shown(fmt.Errorf("%s; and %s", fault.UserText(err), fault.UserText(failedStudies(o, studies, errs, failed, false))))
+			}
 			return err
 		}
 		fmt.Fprintf(w.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
 	}
-	failed := 0
-	for _, err := range errs {
-		if err != nil {
-			failed++
-		}
-	}
-	if failed > 0 {
-		return failedStudies(o, studies, errs, failed)
+	if failed := countFailed(); failed > 0 { // writeSummary may add a damaged results.json
+		return failedStudies(o, studies, errs, failed, len(o.Only) == 0)
 	}
 	return nil
 }
@@ -146,7 +153,7 @@ const maxFailuresShown = 20
 // failedStudies is the batch's final error: the failed studies' ids, then
 // each with its error, one per line (--quiet drops the progress lines,
 // and with --only, as in a scheduler task's log, no summary lists them).
-func failedStudies(o *Options, studies []*study, errs []error, failed int) error {
+func failedStudies(o *Options, studies []*study, errs []error, failed int, summary bool) error {
 	var ids, lines []string
 	stale, occupied, damaged := 0, 0, 0
 	for i, err := range errs {
@@ -174,7 +181,7 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 		lines = append(lines, fmt.Sprintf("\n  ... and %d more", len(ids)-maxFailuresShown))
 	}
 	where := ""
-	if len(o.Only) == 0 {
+	if summary {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
 	}
 	// What --force gets past: a stale study, or a folder that holds files
