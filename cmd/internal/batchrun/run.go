@@ -101,7 +101,7 @@ func claimDir(out string) error {
 	switch {
 	case errors.Is(err, os.ErrNotExist):
 		if err := os.MkdirAll(out, 0o777); err != nil {
-			return fmt.Errorf("cannot create --out %s: %w", out, err)
+			return cannotCreate(out, out, err)
 		}
 	case err != nil:
 		if st, serr := os.Stat(out); serr == nil && !st.IsDir() {
@@ -114,9 +114,20 @@ func claimDir(out string) error {
 		}
 	}
 	if err := os.MkdirAll(filepath.Join(out, OwnDir), 0o777); err != nil {
-		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, OwnDir), err)
+		return cannotCreate(out, filepath.Join(out, OwnDir), err)
 	}
 	return nil
+}
+
+// cannotCreate words a failure to create the batch's folder what in --out
+// out, before any study ran: a full disk says to free space (exit 1);
+// anything else (a read-only disk, a folder of another user) refuses
+// --out (exit 2), as run does.
+func cannotCreate(out, what string, err error) error {
+	if outdir.DiskFull(err) {
+		return fmt.Errorf("--out %s: cannot create %s (%v): free some space on that disk, or give --out a folder on another one; no study ran", out, what, outdir.Cause(err))
+	}
+	return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, what, outdir.Cause(err)))
 }
 
 // recordFailure keeps err as the study's last error, or removes the
