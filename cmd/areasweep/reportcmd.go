@@ -65,6 +65,10 @@ var (
 )
 
 func reportRun(o *ReportOptions) error {
+	// From the start: a signal while results.json is read said "this
+	// run's partial results were removed and --out was left as it was".
+	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
+	stoppedNote.Store(&note)
 	if st, err := os.Stat(o.Dir); err == nil && st.Mode().IsRegular() {
 		if filepath.Base(o.Dir) != "results.json" {
 			return fault.BadInput(fmt.Errorf("%s is a file; give the --out directory of a finished run (the folder holding results.json)", o.Dir))
@@ -123,8 +127,6 @@ func reportRun(o *ReportOptions) error {
 		return fault.BadInput(err)
 	}
 	o.logf("analysis in %.2f s", time.Since(start).Seconds())
-	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
-	stoppedNote.Store(&note)
 	if abs, err := filepath.Abs(o.Dir); err == nil && strings.ContainsAny(abs, "\n\r") {
 		return fault.BadInput(outdir.LineBreakError("the folder", o.Dir, abs))
 	}
