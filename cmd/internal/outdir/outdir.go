@@ -295,7 +295,8 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 // layer's 512 bytes, less room for the "-journal" suffix); GDAL's
 // GeoPackage driver then fails with "unable to open database file". Found
 // by opening databases with paths of 500 to 519 bytes (Python's sqlite3,
-// the system's SQLite): 504 opens, 505 does not.
+// the system's SQLite): 504 opens, 505 does not. extent.MaxSQLitePath is
+// the same bound for the inputs (not imported here: extent needs cgo).
 const maxSQLitePath = 504
 
 // longestStagedName is the longest path inside a staging folder of a file
