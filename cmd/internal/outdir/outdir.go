@@ -248,7 +248,14 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 			return nil, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
+		if errors.Is(err, syscall.ENOTDIR) {
+			for p := filepath.Dir(d.abs); p != filepath.Dir(p); p = filepath.Dir(p) {
+				if st, serr := os.Stat(p); serr == nil && !st.IsDir() {
+					return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a file, not a folder (%w); choose another --out", out, p, Cause(err)))
+				}
+			}
+		}
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
 	}
 	// Registered and held from here, so that a signal (AbortAll) waits
 	// until the lock and the staging folder exist and then removes both,
