@@ -70,3 +70,48 @@ func TestOpenOnFullDisk(t *testing.T) {
 		}
 	}
 }
+
+// TestMoveFailedSaysWhatToDo: a move into --out that fails at the end of
+// a run (a results.json made immutable with chattr +i: "cannot replace
+// im/results.json: operation not permitted", exit 1) says that --out was
+// left as it was and what to do. A folder that takes the place of an
+// output while the outputs move stands in for the immutable file here.
+// The user's files stay, and no staging or set-aside folder is left.
+func TestMoveFailedSaysWhatToDo(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	os.Mkdir(out, 0o755)
+	os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+	d, err := Open(out, true, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, n := range []string{"extents.gpkg", "results.json"} {
+		os.WriteFile(filepath.Join(d.Stage, n), []byte("new"), 0o644)
+	}
+	movedHook = func(n string) {
+		if n == "extents.gpkg" {
+			os.MkdirAll(filepath.Join(out, "results.json", "x"), 0o755)
+		}
+	}
+	defer func() { movedHook = nil }()
+	err = d.Finish()
+	if err == nil {
+		t.Fatal("Finish succeeded")
+	}
+	msg := err.Error()
+	for _, want := range []string{"cannot move results.json into " + out, "nothing in " + out + " was changed", "then run again"} {
+		if !strings.Contains(msg, want) {
+			t.Errorf("%q lacks %q", msg, want)
+		}
+	}
+	if b, _ := os.ReadFile(filepath.Join(out, "notes.txt")); string(b) != "mine" {
+		t.Error("notes.txt changed")
+	}
+	if _, err := os.Stat(filepath.Join(out, "extents.gpkg")); err == nil {
+		t.Error("extents.gpkg was left in --out")
+	}
+	if l := leftovers(dir); len(l) > 0 {
+		t.Errorf("left %v", l)
+	}
+}

@@ -646,7 +646,7 @@ func (d *Dir) Finish() error {
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
-			return fmt.Errorf("cannot move the results into %s: %w", d.Out, Cause(err))
+			return moveFailed(d.Out, "cannot move the results into "+d.Out, err)
 		}
 		// --out appeared during the run: move the entries in one by one.
 	}
@@ -658,6 +658,18 @@ func (d *Dir) Finish() error {
 	os.Remove(filepath.Join(d.Stage, OwnerName))
 	os.Remove(d.Stage)
 	return nil
+}
+
+// moveFailed words a failure to move the results into --out out, after
+// which the run put back what it had moved (the results are gone with the
+// staging folder): what failed, why, that out is as it was, and what to
+// do.
+func moveFailed(out, what string, err error) error {
+	todo := "fix what stops files from being moved there (its permissions, or an immutable attribute: lsattr), then run again"
+	if DiskFull(err) {
+		todo = "free some space on that disk, then run again"
+	}
+	return fmt.Errorf("%s (%w); nothing in %s was changed: %s", what, Cause(err), out, todo)
 }
 
 // movedHook, set by tests, sees each entry moveEntries moved, in order.
@@ -729,7 +741,7 @@ func (d *Dir) moveEntries() error {
 			os.RemoveAll(hold)
 		}
 		os.RemoveAll(d.Stage)
-		return fmt.Errorf("cannot write in %s: %w", d.Out, Cause(err))
+		return moveFailed(d.Out, "cannot write in "+d.Out, err)
 	}
 	var setAside, moved []string
 	undo := func() {
@@ -748,7 +760,7 @@ func (d *Dir) moveEntries() error {
 		}
 		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot replace %s: %w", filepath.Join(d.Out, n), Cause(err))
+			return moveFailed(d.Out, "cannot replace "+filepath.Join(d.Out, n), err)
 		}
 		setAside = append(setAside, n)
 	}
@@ -756,7 +768,7 @@ func (d *Dir) moveEntries() error {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot move %s into %s: %w", n, d.Out, Cause(err))
+			return moveFailed(d.Out, "cannot move "+n+" into "+d.Out, err)
 		}
 		moved = append(moved, n)
 		if movedHook != nil {
