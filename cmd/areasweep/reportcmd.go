@@ -160,8 +160,17 @@ func reportRun(o *ReportOptions) error {
 	if err := notFileInTheWay(filepath.Join(o.Dir, "figures"), names...); err != nil {
 		return err
 	}
-	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir) }); err != nil {
-		return fmt.Errorf("moving the report into %s failed: %s", o.Dir, outdir.Cause(err))
+	moved := 0
+	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir, &moved) }); err != nil {
+		state := "the report files in it were left as they were"
+		if moved > 0 {
+			state = fmt.Sprintf("%d report files before it were replaced by the new ones, the others not", moved)
+		}
+		todo := "fix what stops it (its permissions, or an immutable attribute: lsattr), then run the same command again"
+		if outdir.DiskFull(err) {
+			todo = "free some space on that disk, then run the same command again"
+		}
+		return fmt.Errorf("moving the report into %s failed: %v; %s: %s", o.Dir, err, state, todo)
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
 	return nil
@@ -198,10 +207,20 @@ func notFileInTheWay(dir string, names ...string) error {
 // draw (pages of ring_steps it no longer has) and temporary files left by
 // a killed earlier version are removed; any other file in figures/ is the
 // user's and stays.
-func placeReport(stage, dir string) error {
+//
+// moved counts the files moved into dir; an error names the path it
+// failed on and its cause.
+func placeReport(stage, dir string, moved *int) error {
+	place := func(from, to string) error {
+		if err := os.Rename(from, to); err != nil {
+			return fmt.Errorf("cannot replace %s (%w)", to, outdir.Cause(err))
+		}
+		*moved++
+		return nil
+	}
 	figDir := filepath.Join(dir, "figures")
 	if err := os.Mkdir(figDir, outdir.MkdirPerm()); err != nil && !errors.Is(err, fs.ErrExist) {
-		return err
+		return fmt.Errorf("cannot create %s (%w)", figDir, outdir.Cause(err))
 	}
 	figs, err := os.ReadDir(filepath.Join(stage, "figures"))
 	if err != nil {
@@ -210,7 +229,7 @@ func placeReport(stage, dir string) error {
 	drawn := map[string]bool{}
 	for _, f := range figs {
 		drawn[f.Name()] = true
-		if err := os.Rename(filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())); err != nil {
+		if err := place(filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())); err != nil {
 			return err
 		}
 	}
@@ -226,7 +245,7 @@ func placeReport(stage, dir string) error {
 		}
 	}
 	for _, n := range []string{"methods.md", "report.html"} {
-		if err := os.Rename(filepath.Join(stage, n), filepath.Join(dir, n)); err != nil {
+		if err := place(filepath.Join(stage, n), filepath.Join(dir, n)); err != nil {
 			return err
 		}
 	}

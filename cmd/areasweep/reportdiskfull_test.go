@@ -118,3 +118,30 @@ func TestReportStoppedNoteFromStart(t *testing.T) {
 		t.Errorf("note %q", note)
 	}
 }
+
+// TestPlaceReportNamesWhatFailed: a move of the report's files that fails
+// part-way (report.html made immutable with chattr +i, after the figures
+// and methods.md were moved) said only "moving the report into im failed:
+// operation not permitted", neither the file nor that the files before it
+// were already replaced. placeReport now names the file it failed on and
+// counts the files it moved. A folder in report.html's place stands in
+// for the immutable file.
+func TestPlaceReportNamesWhatFailed(t *testing.T) {
+	stage, dir := t.TempDir(), t.TempDir()
+	os.MkdirAll(filepath.Join(stage, "figures"), 0o755)
+	os.WriteFile(filepath.Join(stage, "figures", "roc_curves.svg"), []byte("new"), 0o644)
+	os.WriteFile(filepath.Join(stage, "methods.md"), []byte("new"), 0o644)
+	os.WriteFile(filepath.Join(stage, "report.html"), []byte("new"), 0o644)
+	os.MkdirAll(filepath.Join(dir, "report.html", "x"), 0o755)
+	moved := 0
+	err := placeReport(stage, dir, &moved)
+	if err == nil {
+		t.Fatal("placeReport succeeded")
+	}
+	if want := "cannot replace " + filepath.Join(dir, "report.html") + " ("; !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("%q does not start with %q", err, want)
+	}
+	if moved != 2 {
+		t.Errorf("moved %d files, want 2 (the figure and methods.md)", moved)
+	}
+}
