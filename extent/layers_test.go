@@ -267,3 +267,39 @@ func TestWrongKindOfFileAdvice(t *testing.T) {
 	_, err = OpenGrid(notRaster)
 	check("not a raster", err, "give a GeoTIFF", "")
 }
+
+// TestLongPathGeoPackage: a GeoPackage whose path is longer than SQLite
+// opens was refused as "not a vector file GDAL can read (failed: unable
+// to open database file); check that the file opens in a GIS, or export
+// it again", though the file is fine (a region of 615 bytes' path). It is
+// now named with its length and what to do. The file is written at a
+// short path and moved (SQLite cannot write it there either).
+func TestLongPathGeoPackage(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	short := filepath.Join(dir, "region.gpkg")
+	writePolygonGPKG(t, short, 4326, [][2]float64{{0.5, 0.5}, {3, 0.5}, {3, 3}, {0.5, 3}, {0.5, 0.5}})
+	long := dir
+	for len(long) <= MaxSQLitePath {
+		long = filepath.Join(long, strings.Repeat("d", 100))
+	}
+	if err := os.MkdirAll(long, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	long = filepath.Join(long, "region.gpkg")
+	if err := os.Rename(short, long); err != nil {
+		t.Fatal(err)
+	}
+	_, _, err := ReadShape(long, g)
+	if err == nil {
+		t.Fatal("read")
+	}
+	for _, w := range []string{"its path is", "move it to a folder with a shorter path"} {
+		if !strings.Contains(err.Error(), w) {
+			t.Errorf("%q lacks %q", err, w)
+		}
+	}
+	if strings.Contains(err.Error(), "export it again") {
+		t.Errorf("%q blames the file", err)
+	}
+}

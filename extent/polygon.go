@@ -140,6 +140,13 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 	return s, warns, nil
 }
 
+// MaxSQLitePath is the longest path of a file SQLite opens (its Unix
+// layer's 512 bytes, less room for the "-journal" suffix); GDAL's
+// GeoPackage driver then fails with "unable to open database file". Found
+// by opening databases with paths of 500 to 519 bytes (Python's sqlite3,
+// the system's SQLite): 504 opens, 505 does not.
+const MaxSQLitePath = 504
+
 // openVectorError explains why GDAL could not open path as a vector file,
 // in our words and with what to do.
 func openVectorError(path string, err error) error {
@@ -151,6 +158,11 @@ func openVectorError(path string, err error) error {
 		return fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
 	}
 	cause := gdalmsg.Cause(err.Error())
+	if abs, aerr := filepath.Abs(path); aerr == nil && len(abs) > MaxSQLitePath && strings.Contains(cause, "unable to open database file") {
+		// The file may be fine: SQLite, which GDAL reads a GeoPackage
+		// with, opens no longer path.
+		return fmt.Errorf("extent: %s cannot be opened: its path is %d bytes long, and SQLite, which reads GeoPackages, opens files whose path has at most %d; move it to a folder with a shorter path", path, len(abs), MaxSQLitePath)
+	}
 	if hint == "" {
 		hint = vectorAdvice(cause)
 	}

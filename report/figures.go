@@ -207,8 +207,34 @@ func writeFigures(figDir string, fs []figure, withSVGs func([]renderedFigure) er
 // walks maps otherwise).
 var pdfOnce sync.Once
 
+// pdfFontFailed is the start of the PDF writer's panic when it cannot
+// prepare the embedded font: it does so once per process, in a folder it
+// makes under the temporary directory.
+const pdfFontFailed = "vgpdf: could not generate font data for PDF: "
+
+// fontTempDirError words that panic: an outside failure (a TMPDIR that is
+// read-only, full or missing) rather than a bug.
+func fontTempDirError(msg string) error {
+	cause := strings.TrimPrefix(msg, pdfFontFailed)
+	if i := strings.LastIndex(cause, ": "); i >= 0 {
+		cause = cause[i+2:] // the system's reason, without the library's temporary path
+	}
+	return fmt.Errorf("the PDF figures need the temporary folder %s (TMPDIR), which cannot be used: %s; set TMPDIR to a folder you can write to, with free space", os.TempDir(), cause)
+}
+
 // render draws f in one format: "svg", "pdf" or "png" (at pngDPI on white).
-func render(f figure, format string) ([]byte, error) {
+func render(f figure, format string) (data []byte, err error) {
+	if format == "pdf" {
+		defer func() {
+			if v := recover(); v != nil {
+				if msg := fmt.Sprint(v); strings.HasPrefix(msg, pdfFontFailed) {
+					data, err = nil, fontTempDirError(msg)
+					return
+				}
+				panic(v)
+			}
+		}()
+	}
 	if format == "png" {
 		c := newPNGCanvas(f.W, f.H)
 		defer pixBuffers.put(c.img.Pix)

@@ -57,7 +57,18 @@ with --force.`,
 	return cmd
 }
 
+// stageReport and writeReport are outdir.Stage and report.Write; tests
+// replace them to meet a full disk.
+var (
+	stageReport = outdir.Stage
+	writeReport = report.Write
+)
+
 func reportRun(o *ReportOptions) error {
+	// From the start: a signal while results.json is read said "this
+	// run's partial results were removed and --out was left as it was".
+	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
+	stoppedNote.Store(&note)
 	if st, err := os.Stat(o.Dir); err == nil && st.Mode().IsRegular() {
 		if filepath.Base(o.Dir) != "results.json" {
 			return fault.BadInput(fmt.Errorf("%s is a file; give the --out directory of a finished run (the folder holding results.json)", o.Dir))
@@ -116,16 +127,24 @@ func reportRun(o *ReportOptions) error {
 		return fault.BadInput(err)
 	}
 	o.logf("analysis in %.2f s", time.Since(start).Seconds())
-	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)
-	stoppedNote.Store(&note)
-	st2, err := outdir.Stage(o.Dir)
+	if abs, err := filepath.Abs(o.Dir); err == nil && strings.ContainsAny(abs, "\n\r") {
+		return fault.BadInput(outdir.LineBreakError("the folder", o.Dir, abs))
+	}
+	st2, err := stageReport(o.Dir)
+	if err != nil && outdir.DiskFull(err) {
+		return fmt.Errorf("%s: cannot write in it (%v): free some space on that disk, or re-render the report of a copy of the folder on another one; the report files in it were left as they were", o.Dir, outdir.Cause(err))
+	}
 	if err != nil {
 		return fault.BadInput(fmt.Errorf("%s: cannot write in it (%v); re-render the report of a folder you can write to, e.g. a copy of it", o.Dir, outdir.Cause(err)))
 	}
 	defer st2.Abort()
 	start = time.Now()
-	if err := report.Write(st2.Path, r); err != nil {
-		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", outdir.Cause(err), o.Dir)
+	if err := writeReport(st2.Path, r); err != nil {
+		what := outdir.Cause(err).Error()
+		if outdir.DiskFull(err) {
+			what += " (free some space on that disk, or re-render the report of a copy of the folder on another one)"
+		}
+		return fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", what, o.Dir)
 	}
 	o.logf("report written in %.2f s", time.Since(start).Seconds())
 	// A folder where a figure file goes (the names are known once
@@ -141,8 +160,17 @@ func reportRun(o *ReportOptions) error {
 	if err := notFileInTheWay(filepath.Join(o.Dir, "figures"), names...); err != nil {
 		return err
 	}
-	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir) }); err != nil {
-		return fmt.Errorf("moving the report into %s failed: %s", o.Dir, outdir.Cause(err))
+	moved := 0
+	if err := st2.Finish(func() error { return placeReport(st2.Path, o.Dir, &moved) }); err != nil {
+		state := "the report files in it were left as they were"
+		if moved > 0 {
+			state = fmt.Sprintf("%d report files before it were replaced by the new ones, the others not", moved)
+		}
+		todo := "fix what stops it (its permissions, or an immutable attribute: lsattr), then run the same command again"
+		if outdir.DiskFull(err) {
+			todo = "free some space on that disk, then run the same command again"
+		}
+		return fmt.Errorf("moving the report into %s failed: %v; %s: %s", o.Dir, err, state, todo)
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Dir, "report.html"))
 	return nil
@@ -179,10 +207,20 @@ func notFileInTheWay(dir string, names ...string) error {
 // draw (pages of ring_steps it no longer has) and temporary files left by
 // a killed earlier version are removed; any other file in figures/ is the
 // user's and stays.
-func placeReport(stage, dir string) error {
+//
+// moved counts the files moved into dir; an error names the path it
+// failed on and its cause.
+func placeReport(stage, dir string, moved *int) error {
+	place := func(from, to string) error {
+		if err := os.Rename(from, to); err != nil {
+			return fmt.Errorf("cannot replace %s (%w)", to, outdir.Cause(err))
+		}
+		*moved++
+		return nil
+	}
 	figDir := filepath.Join(dir, "figures")
 	if err := os.Mkdir(figDir, outdir.MkdirPerm()); err != nil && !errors.Is(err, fs.ErrExist) {
-		return err
+		return fmt.Errorf("cannot create %s (%w)", figDir, outdir.Cause(err))
 	}
 	figs, err := os.ReadDir(filepath.Join(stage, "figures"))
 	if err != nil {
@@ -191,7 +229,7 @@ func placeReport(stage, dir string) error {
 	drawn := map[string]bool{}
 	for _, f := range figs {
 		drawn[f.Name()] = true
-		if err := os.Rename(filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())); err != nil {
+		if err := place(filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())); err != nil {
 			return err
 		}
 	}
@@ -207,7 +245,7 @@ func placeReport(stage, dir string) error {
 		}
 	}
 	for _, n := range []string{"methods.md", "report.html"} {
-		if err := os.Rename(filepath.Join(stage, n), filepath.Join(dir, n)); err != nil {
+		if err := place(filepath.Join(stage, n), filepath.Join(dir, n)); err != nil {
 			return err
 		}
 	}

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"log"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -99,6 +100,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	}()
 	extent.Configure()
 	gdalmsg.Install()
+	log.SetFlags(0)
+	log.SetOutput(gdalmsg.GoLog) // a Go library's log lines go to the run log, not the terminal
 	defer func() {
 		if r := recover(); r != nil {
 			outdir.AbortAll()
@@ -119,7 +122,11 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		// cobra's own refusal of a command it does not have.
 		err = fault.BadInput(fmt.Errorf("%w (see 'areasweep --help')", err))
 	}
-	fmt.Fprintf(errOut, "areasweep: %s\n", strings.TrimRight(fault.UserText(err), "\n"))
+	msg := strings.TrimRight(fault.UserText(err), "\n")
+	if _, werr := os.Getwd(); werr != nil && !strings.Contains(msg, outdir.CwdGone) {
+		msg += "; " + outdir.CwdGone // a relative path was most likely given
+	}
+	fmt.Fprintf(errOut, "areasweep: %s\n", msg)
 	switch {
 	case fault.IsBadInput(err):
 		return exitBadInput

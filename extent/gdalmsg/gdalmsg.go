@@ -9,6 +9,7 @@ import "C"
 import (
 	"errors"
 	"fmt"
+	"io"
 	"regexp"
 	"strings"
 	"sync"
@@ -78,6 +79,21 @@ func Record(level Level, code int, text string) {
 		return
 	}
 	kept = append(kept, m)
+}
+
+// GoLog is the writer for Go's standard logger: a library written in Go
+// logs there (the PDF writer, before a panic the caller words), and its
+// lines would reach the terminal raw with a timestamp. Each line is
+// recorded as a library error, for the run log.
+var GoLog io.Writer = goLog{}
+
+type goLog struct{}
+
+func (goLog) Write(p []byte) (int, error) {
+	for _, l := range strings.Split(strings.TrimSpace(string(p)), "\n") {
+		Record(Failure, 0, l)
+	}
+	return len(p), nil
 }
 
 // Drain returns the recorded messages and forgets them, with the number

@@ -69,20 +69,27 @@ func runLocal(ctx context.Context, o *Options, w IO, studies []*study) error {
 			recordFailure(o.Out, st.id, o.Shard, errs[i])
 		}
 	}
+	countFailed := func() int {
+		n := 0
+		for _, err := range errs {
+			if err != nil {
+				n++
+			}
+		}
+		return n
+	}
 	if len(o.Only) == 0 {
 		if err := writeSummary(o, studies, errs); err != nil {
+			if failed := countFailed(); failed > 0 && !fault.IsInternal(err) {
+				// The studies that failed are named all the same.
+				return fault.Shown(fmt.Errorf("%s; and %s", fault.UserText(err), fault.UserText(failedStudies(o, studies, errs, failed, false))))
+			}
 			return err
 		}
 		fmt.Fprintf(w.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
 	}
-	failed := 0
-	for _, err := range errs {
-		if err != nil {
-			failed++
-		}
-	}
-	if failed > 0 {
-		return failedStudies(o, studies, errs, failed)
+	if failed := countFailed(); failed > 0 { // writeSummary may add a damaged results.json
+		return failedStudies(o, studies, errs, failed, len(o.Only) == 0)
 	}
 	return nil
 }
@@ -94,7 +101,7 @@ func claimDir(out string) error {
 	switch {
 	case errors.Is(err, os.ErrNotExist):
 		if err := os.MkdirAll(out, 0o777); err != nil {
-			return fmt.Errorf("cannot create --out %s: %w", out, err)
+			return cannotCreate(out, out, err)
 		}
 	case err != nil:
 		if st, serr := os.Stat(out); serr == nil && !st.IsDir() {
@@ -107,9 +114,20 @@ func claimDir(out string) error {
 		}
 	}
 	if err := os.MkdirAll(filepath.Join(out, OwnDir), 0o777); err != nil {
-		return fmt.Errorf("cannot create %s: %w", filepath.Join(out, OwnDir), err)
+		return cannotCreate(out, filepath.Join(out, OwnDir), err)
 	}
 	return nil
+}
+
+// cannotCreate words a failure to create the batch's folder what in --out
+// out, before any study ran: a full disk says to free space (exit 1);
+// anything else (a read-only disk, a folder of another user) refuses
+// --out (exit 2), as run does.
+func cannotCreate(out, what string, err error) error {
+	if outdir.DiskFull(err) {
+		return fmt.Errorf("--out %s: cannot create %s (%v): free some space on that disk, or give --out a folder on another one; no study ran", out, what, outdir.Cause(err))
+	}
+	return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%v); choose a folder you can write to", out, what, outdir.Cause(err)))
 }
 
 // recordFailure keeps err as the study's last error, or removes the
@@ -146,7 +164,7 @@ const maxFailuresShown = 20
 // failedStudies is the batch's final error: the failed studies' ids, then
 // each with its error, one per line (--quiet drops the progress lines,
 // and with --only, as in a scheduler task's log, no summary lists them).
-func failedStudies(o *Options, studies []*study, errs []error, failed int) error {
+func failedStudies(o *Options, studies []*study, errs []error, failed int, summary bool) error {
 	var ids, lines []string
 	stale, occupied, damaged := 0, 0, 0
 	for i, err := range errs {
@@ -174,7 +192,7 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int) error
 		lines = append(lines, fmt.Sprintf("\n  ... and %d more", len(ids)-maxFailuresShown))
 	}
 	where := ""
-	if len(o.Only) == 0 {
+	if summary {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
 	}
 	// What --force gets past: a stale study, or a folder that holds files

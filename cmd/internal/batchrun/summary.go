@@ -8,8 +8,14 @@ import (
 
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
+	"areasweep/extent/gdalmsg"
 	"areasweep/report"
 )
+
+// writeSummaryFiles is report.WriteSummary; tests replace it to meet a
+// full disk.
+var writeSummaryFiles = report.WriteSummary
 
 // writeSummary loads each finished study's results.json (the same
 // bytes whether it ran now or earlier, so the summary does not depend on
@@ -47,8 +53,14 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 	if err != nil {
 		return fault.Internal(err)
 	}
-	if err := report.WriteSummary(o.Out, s); err != nil {
-		return fmt.Errorf("writing the summary: %w", err)
+	if err := writeSummaryFiles(o.Out, s); err != nil {
+		// The summary's files are each replaced whole; the studies'
+		// folders are not touched.
+		what := gdalmsg.Cause(outdir.Cause(err).Error())
+		if outdir.DiskFull(err) {
+			what += " (free some space on that disk)"
+		}
+		return fmt.Errorf("writing the summary into %s failed: %s; finished studies keep their folders, and running the same command again skips them and writes it", o.Out, what)
 	}
 	return nil
 }

@@ -207,15 +207,21 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: %w", out, err))
+		return nil, fault.BadInput(fmt.Errorf("--out %s is a relative path and %s", out, CwdGone))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
 	if d.abs == d.parent {
 		return nil, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
 	}
+	if strings.ContainsAny(d.abs, "\n\r") {
+		return nil, fault.BadInput(LineBreakError("--out", out, d.abs))
+	}
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
 		return nil, err
+	}
+	if n := d.longestStaged(); n > maxSQLitePath && !shard {
+		return nil, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
 	}
 	st, err := os.Stat(d.abs)
 	exists := err == nil
@@ -242,7 +248,14 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 			return nil, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %w", out, Cause(err)))
+		if errors.Is(err, syscall.ENOTDIR) {
+			for p := filepath.Dir(d.abs); p != filepath.Dir(p); p = filepath.Dir(p) {
+				if st, serr := os.Stat(p); serr == nil && !st.IsDir() {
+					return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a file, not a folder (%w); choose another --out", out, p, Cause(err)))
+				}
+			}
+		}
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
 	}
 	// Registered and held from here, so that a signal (AbortAll) waits
 	// until the lock and the staging folder exist and then removes both,
@@ -279,10 +292,69 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 		if stage != "" {
 			os.RemoveAll(stage)
 		}
-		return fail(fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err))))
+		return fail(cannotWrite(out, where, err))
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// maxSQLitePath is the longest path of a file SQLite opens (its Unix
+// layer's 512 bytes, less room for the "-journal" suffix); GDAL's
+// GeoPackage driver then fails with "unable to open database file". Found
+// by opening databases with paths of 500 to 519 bytes (Python's sqlite3,
+// the system's SQLite): 504 opens, 505 does not. extent.MaxSQLitePath is
+// the same bound for the inputs (not imported here: extent needs cgo).
+const maxSQLitePath = 504
+
+// longestStagedName is the longest path inside a staging folder of a file
+// SQLite opens: the demo's ecoregions (omitted_points.gpkg is 3 bytes
+// shorter).
+const longestStagedName = "/inputs/ecoregions.gpkg"
+
+// longestStaged is the length in bytes of the longest path of a GeoPackage
+// written in the staging folder: the folder's name ends in this process's
+// ID and a random number of at most 10 digits (os.MkdirTemp).
+func (d *Dir) longestStaged() int {
+	where, prefix := d.parent, "."+d.name+"."+stagePrefix[1:]
+	if st, err := os.Stat(d.abs); err == nil && st.IsDir() {
+		where, prefix = d.abs, stagePrefix
+	}
+	return len(where) + 1 + len(prefix) + len(strconv.Itoa(os.Getpid())) + 1 + 10 + len(longestStagedName)
+}
+
+// CwdGone says that the current folder was removed (os.Getwd fails), with
+// what to do.
+const CwdGone = "the current folder no longer exists (removed after the shell entered it), so relative paths name nothing: cd to an existing folder, or give absolute paths"
+
+// LineBreakError refuses a folder to write in (what: "--out", or the
+// report's folder) given as given whose absolute path abs holds a line
+// break: the owner record of its staging folder is one line per field. The
+// names are quoted, so that the message stays on one line.
+func LineBreakError(what, given, abs string) error {
+	where := fmt.Sprintf("%s %q", what, given)
+	if abs != given {
+		where += fmt.Sprintf(" (%q)", abs)
+	}
+	return fmt.Errorf("%s: the path holds a line break, which areasweep does not write under; choose a folder whose path has none", where)
+}
+
+// DiskFull reports whether err comes from a full disk or quota (ENOSPC,
+// EDQUOT): an outside failure (exit 1) that freeing space mends, not a
+// folder to refuse.
+func DiskFull(err error) bool {
+	c := Cause(err)
+	return errors.Is(c, syscall.ENOSPC) || errors.Is(c, syscall.EDQUOT)
+}
+
+// cannotWrite words a failure to write in where, the folder of --out or
+// the one it goes in, before the run wrote anything: a full disk says to
+// free space (exit 1), anything else (a read-only disk, a folder of
+// another user) is a refusal of --out (exit 2).
+func cannotWrite(out, where string, err error) error {
+	if DiskFull(err) {
+		return fmt.Errorf("--out %s: cannot write in %s (%w): free some space on that disk, or give --out a folder on another one; nothing was written", out, where, Cause(err))
+	}
+	return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, where, Cause(err)))
 }
 
 // visible drops areasweep's own hidden entries (a staging folder of a dead
@@ -385,6 +457,9 @@ func (d *Dir) makeParent(out string) error {
 		}
 	}
 	if err := os.MkdirAll(d.parent, MkdirPerm()); err != nil {
+		if DiskFull(err) {
+			return cannotWrite(out, filepath.Dir(d.parent), err)
+		}
 		return fault.BadInput(fmt.Errorf("--out %s: cannot create %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
 	}
 	d.created = missing
@@ -409,7 +484,7 @@ func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
 		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			return fault.BadInput(fmt.Errorf("--out %s: cannot write in %s (%w); choose a folder you can write to", out, d.parent, Cause(err)))
+			return cannotWrite(out, d.parent, err)
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())
@@ -571,7 +646,7 @@ func (d *Dir) Finish() error {
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
-			return fmt.Errorf("cannot move the results into %s: %w", d.Out, Cause(err))
+			return moveFailed(d.Out, "cannot move the results into "+d.Out, err)
 		}
 		// --out appeared during the run: move the entries in one by one.
 	}
@@ -583,6 +658,18 @@ func (d *Dir) Finish() error {
 	os.Remove(filepath.Join(d.Stage, OwnerName))
 	os.Remove(d.Stage)
 	return nil
+}
+
+// moveFailed words a failure to move the results into --out out, after
+// which the run put back what it had moved (the results are gone with the
+// staging folder): what failed, why, that out is as it was, and what to
+// do.
+func moveFailed(out, what string, err error) error {
+	todo := "fix what stops files from being moved there (its permissions, or an immutable attribute: lsattr), then run again"
+	if DiskFull(err) {
+		todo = "free some space on that disk, then run again"
+	}
+	return fmt.Errorf("%s (%w); nothing in %s was changed: %s", what, Cause(err), out, todo)
 }
 
 // movedHook, set by tests, sees each entry moveEntries moved, in order.
@@ -654,7 +741,7 @@ func (d *Dir) moveEntries() error {
 			os.RemoveAll(hold)
 		}
 		os.RemoveAll(d.Stage)
-		return fmt.Errorf("cannot write in %s: %w", d.Out, Cause(err))
+		return moveFailed(d.Out, "cannot write in "+d.Out, err)
 	}
 	var setAside, moved []string
 	undo := func() {
@@ -673,7 +760,7 @@ func (d *Dir) moveEntries() error {
 		}
 		if err := os.Rename(filepath.Join(d.abs, n), filepath.Join(hold, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot replace %s: %w", filepath.Join(d.Out, n), Cause(err))
+			return moveFailed(d.Out, "cannot replace "+filepath.Join(d.Out, n), err)
 		}
 		setAside = append(setAside, n)
 	}
@@ -681,7 +768,7 @@ func (d *Dir) moveEntries() error {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
 			undo()
-			return fmt.Errorf("cannot move %s into %s: %w", n, d.Out, Cause(err))
+			return moveFailed(d.Out, "cannot move "+n+" into "+d.Out, err)
 		}
 		moved = append(moved, n)
 		if movedHook != nil {

@@ -227,6 +227,10 @@ func TestOpenErrorsWrapTheCause(t *testing.T) {
 	if !fault.IsBadInput(err) {
 		t.Errorf("Open under a file: %v is not an input error", err)
 	}
+	// It said only "--out FILE/res cannot be used: not a directory".
+	if msg := err.Error(); !strings.Contains(msg, file+" on its path is a file") || !strings.Contains(msg, "choose another --out") {
+		t.Errorf("Open under a file: %q does not name the file and what to do", msg)
+	}
 }
 
 // TestForeignErrorNamesEachFolder: files of the user's in the demo's

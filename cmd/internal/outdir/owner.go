@@ -45,8 +45,11 @@ func writeOwner(dir, out string) error {
 	pid := os.Getpid()
 	var b bytes.Buffer
 	fmt.Fprintf(&b, "out\t%s\nhost\t%s\nboot\t%s\npid\t%d\nstart\t%s\n", out, host, bootID(), pid, startTime(pid))
-	return os.WriteFile(filepath.Join(dir, OwnerName), b.Bytes(), 0o666&^Umask)
+	return writeFile(filepath.Join(dir, OwnerName), b.Bytes(), 0o666&^Umask)
 }
+
+// writeFile is os.WriteFile; tests replace it to meet a full disk.
+var writeFile = os.WriteFile
 
 // readOwner reads the owner record in dir; an error when there is none or
 // it does not read as one (then the folder is not provably ours).

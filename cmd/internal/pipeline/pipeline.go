@@ -385,11 +385,21 @@ func (s *Study) writeFailed(err error) error {
 	return writeFailedIn(s.o.Out, err)
 }
 
+// sqliteFull is SQLite's text for a full disk (SQLITE_FULL), which GDAL's
+// GeoPackage driver reports instead of the system's ENOSPC, inside its own
+// words and the staging file's path ("sqlite3_exec(COMMIT) failed: database
+// or disk is full", GDAL 3.6 on a full tmpfs).
+const sqliteFull = "database or disk is full"
+
 // writeFailedIn is writeFailed for the output folder out.
 func writeFailedIn(out string, err error) error {
 	cause := outdir.Cause(err)
 	what := gdalmsg.Cause(cause.Error())
-	if errors.Is(cause, syscall.ENOSPC) || errors.Is(cause, syscall.EDQUOT) {
+	full := errors.Is(cause, syscall.ENOSPC) || errors.Is(cause, syscall.EDQUOT)
+	if !full && strings.Contains(cause.Error(), sqliteFull) {
+		full, what = true, syscall.ENOSPC.Error()
+	}
+	if full {
 		what += " (free some space on that disk, or give --out a folder on another one)"
 	}
 	return fmt.Errorf("writing the results into %s failed: %s; nothing in it was changed", out, what)
