@@ -2,7 +2,6 @@ package pipeline
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -395,7 +394,7 @@ const sqliteFull = "database or disk is full"
 func writeFailedIn(out string, err error) error {
 	cause := outdir.Cause(err)
 	what := gdalmsg.Cause(cause.Error())
-	full := errors.Is(cause, syscall.ENOSPC) || errors.Is(cause, syscall.EDQUOT)
+	full := outdir.DiskFull(cause)
 	if !full && strings.Contains(cause.Error(), sqliteFull) {
 		full, what = true, syscall.ENOSPC.Error()
 	}
