@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
+	"areasweep/report/outfile"
 )
 
 // StudyResult is one study of a batch as the summary across studies sees
@@ -584,38 +585,38 @@ func WriteSummary(dir string, s *BatchSummary) error {
 	if err := s.WriteVerdictsCSV(&verdicts); err != nil {
 		return err
 	}
-	files := []struct{ name, data string }{
-		{SummaryCSV, rows.String()},
-		{SummaryVerdicts, verdicts.String()},
-		{SummaryMethods, s.MethodsText()},
-	}
-	for _, f := range files {
-		if err := writeAtomic(filepath.Join(dir, f.name), []byte(f.data)); err != nil {
-			return err
-		}
+	// Everything is made first, then written together (outfile.WriteAll):
+	// a full disk leaves the previous summary whole, not a mix of old and
+	// new files.
+	files := []outfile.File{
+		{Path: filepath.Join(dir, SummaryCSV), Data: []byte(rows.String())},
+		{Path: filepath.Join(dir, SummaryVerdicts), Data: []byte(verdicts.String())},
+		{Path: filepath.Join(dir, SummaryMethods), Data: []byte(s.MethodsText())},
 	}
 	var svg []byte
 	if f, ok := effectFigure(s); ok {
 		figDir := filepath.Join(dir, SummaryFigures)
-		if err := os.MkdirAll(figDir, 0o777); err != nil {
-			return fmt.Errorf("report: create %s: %w", figDir, err)
-		}
 		for _, format := range figureFormats {
 			data, err := render(f, format)
 			if err != nil {
 				return err
 			}
-			if err := writeAtomic(filepath.Join(figDir, f.Name+"."+format), data); err != nil {
-				return err
-			}
+			files = append(files, outfile.File{Path: filepath.Join(figDir, f.Name+"."+format), Data: data})
 			if format == "svg" {
 				svg = data
 			}
+		}
+		if err := os.MkdirAll(figDir, 0o777); err != nil {
+			return fmt.Errorf("report: create %s: %w", figDir, err)
 		}
 	}
 	page, err := s.page(svg)
 	if err != nil {
 		return err
 	}
-	return writeAtomic(filepath.Join(dir, SummaryHTML), page)
+	files = append(files, outfile.File{Path: filepath.Join(dir, SummaryHTML), Data: page})
+	if err := outfile.WriteAll(files, 0o666); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	return nil
 }

@@ -53,9 +53,26 @@ func Write(path string, data []byte, perm os.FileMode) error {
 // it whole. When fill fails nothing is left, and its error is returned
 // with the path.
 func WriteFrom(path string, perm os.FileMode, fill func(w io.Writer) error) error {
+	tmp, err := writeTemp(path, perm, fill)
+	if err == nil {
+		err = os.Rename(tmp, path)
+	}
+	if err != nil {
+		if tmp != "" {
+			os.Remove(tmp)
+		}
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return nil
+}
+
+// writeTemp writes what fill writes into a temporary file beside path,
+// synced and with mode perm &^ Umask, and returns its name; on an error
+// nothing is left and the name is "".
+func writeTemp(path string, perm os.FileMode, fill func(w io.Writer) error) (string, error) {
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+tempInfix+"*")
 	if err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", err
 	}
 	err = fill(tmp)
 	if err == nil {
@@ -67,12 +84,48 @@ func WriteFrom(path string, perm os.FileMode, fill func(w io.Writer) error) erro
 	if cerr := tmp.Close(); err == nil {
 		err = cerr
 	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), path)
-	}
 	if err != nil {
 		os.Remove(tmp.Name())
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", err
+	}
+	return tmp.Name(), nil
+}
+
+// File is one file of a set that WriteAll writes.
+type File struct {
+	Path string
+	Data []byte
+}
+
+// WriteAll writes a set of files together: every one is written and
+// synced to its temporary file first, and only when all are written are
+// they renamed over their paths, in order. A failure while writing (a full
+// disk) leaves every path as it was, with no temporary file; a rename
+// that fails (rare: the folder changed meanwhile) leaves the files before
+// it replaced, and the error says how many.
+func WriteAll(files []File, perm os.FileMode) error {
+	tmps := make([]string, 0, len(files))
+	removeTmps := func(from int) {
+		for _, t := range tmps[from:] {
+			os.Remove(t)
+		}
+	}
+	for _, f := range files {
+		tmp, err := writeTemp(f.Path, perm, func(w io.Writer) error {
+			_, err := w.Write(f.Data)
+			return err
+		})
+		if err != nil {
+			removeTmps(0)
+			return fmt.Errorf("write %s: %w", f.Path, err)
+		}
+		tmps = append(tmps, tmp)
+	}
+	for i, f := range files {
+		if err := os.Rename(tmps[i], f.Path); err != nil {
+			removeTmps(i)
+			return fmt.Errorf("write %s (after %d of the %d files were replaced): %w", f.Path, i, len(files), err)
+		}
 	}
 	return nil
 }

@@ -6,6 +6,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 )
@@ -100,6 +101,69 @@ func TestIsTemp(t *testing.T) {
 	for _, name := range []string{"roc_curves.svg", ".roc_curves.svg", "roc_curves.svg.tmp-12", ".a.tmp-", ".a.tmp-12x", ".tmp-12"} {
 		if IsTemp(name) {
 			t.Errorf("IsTemp(%q) = true, want false", name)
+		}
+	}
+}
+
+// TestWriteAll: a set of files replaces the older ones together; a file
+// that cannot be written (its folder is missing) leaves every older file
+// as it was and no temporary file anywhere; a rename that fails (the path
+// is a folder) says how many files were already replaced.
+func TestWriteAll(t *testing.T) {
+	dir := t.TempDir()
+	sub := filepath.Join(dir, "figs")
+	if err := os.Mkdir(sub, 0o777); err != nil {
+		t.Fatal(err)
+	}
+	a, b, c := filepath.Join(dir, "a.csv"), filepath.Join(sub, "b.svg"), filepath.Join(dir, "c.html")
+	read := func() [3]string {
+		var got [3]string
+		for i, p := range []string{a, b, c} {
+			data, _ := os.ReadFile(p)
+			got[i] = string(data)
+		}
+		return got
+	}
+	set := func(v string, extra ...File) []File {
+		return append([]File{{a, []byte("a" + v)}, {b, []byte("b" + v)}, {c, []byte("c" + v)}}, extra...)
+	}
+	if err := WriteAll(set("1"), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	if got := read(); got != [3]string{"a1", "b1", "c1"} {
+		t.Fatalf("after the first set: %q", got)
+	}
+	err := WriteAll(set("2", File{filepath.Join(dir, "missing", "d.png"), []byte("d")}), 0o666)
+	if !errors.Is(err, fs.ErrNotExist) {
+		t.Fatalf("a file in a missing folder: %v, want a not-exist cause", err)
+	}
+	if got := read(); got != [3]string{"a1", "b1", "c1"} {
+		t.Errorf("a failed set changed the older files: %q", got)
+	}
+	for _, d := range []string{dir, sub} {
+		entries, _ := os.ReadDir(d)
+		for _, e := range entries {
+			if IsTemp(e.Name()) {
+				t.Errorf("temporary file %s left in %s", e.Name(), d)
+			}
+		}
+	}
+	// A folder in the way of the last file: the first three are replaced.
+	blocked := filepath.Join(dir, "e")
+	if err := os.MkdirAll(filepath.Join(blocked, "inside"), 0o777); err != nil {
+		t.Fatal(err)
+	}
+	err = WriteAll(set("3", File{blocked, []byte("e")}), 0o666)
+	if err == nil || !strings.Contains(err.Error(), "after 3 of the 4 files were replaced") {
+		t.Errorf("a failed rename: %v, want it to say 3 of the 4 files were replaced", err)
+	}
+	if got := read(); got != [3]string{"a3", "b3", "c3"} {
+		t.Errorf("files before the failed rename: %q, want them replaced", got)
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if IsTemp(e.Name()) {
+			t.Errorf("temporary file %s left after a failed rename", e.Name())
 		}
 	}
 }
