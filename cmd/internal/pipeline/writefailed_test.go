@@ -30,14 +30,20 @@ func TestWriteFailedNamesFolder(t *testing.T) {
 		{"geopackage insert", errors.New("extent: write feature 1 of extents to /data/.out.areasweep-partial-1-2/extents.gpkg: sqlite3_exec(INSERT INTO gpkg_geometry_columns (table_name,column_name,geometry_type_name,srs_id,z,m) VALUES ('extents','geom','MULTIPOLYGON',4326,0,0)) failed: database or disk is full"), true},
 		{"input/output", &os.PathError{Op: "write", Path: stage, Err: syscall.EIO}, false},
 		{"other", errors.New("short write"), false},
+		// Another library error naming a file in the staging folder: the
+		// file is named in --out instead.
+		{"library error", errors.New("extent: write /data/.sp1.areasweep-stage-7/extents.gpkg: I/O error"), false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			msg := writeFailedIn("results/sp1", tc.err).Error()
+			msg := writeFailedIn("results/sp1", "/data/.sp1.areasweep-stage-7", tc.err).Error()
 			if !strings.HasPrefix(msg, "writing the results into results/sp1 failed: ") || !strings.HasSuffix(msg, "; nothing in it was changed") {
 				t.Fatalf("message %q does not name the output folder", msg)
 			}
 			if strings.Contains(msg, "stage") || strings.Contains(msg, "areasweep-partial") || strings.Contains(msg, "sqlite") || strings.Contains(msg, ") failed") {
 				t.Errorf("message %q names the staging path", msg)
+			}
+			if tc.name == "library error" && !strings.Contains(msg, "results/sp1/extents.gpkg: I/O error") {
+				t.Errorf("message %q does not name the file in the output folder", msg)
 			}
 			if got := strings.Contains(msg, "free some space"); got != tc.advice {
 				t.Errorf("message %q: advice on space %v, want %v", msg, got, tc.advice)
