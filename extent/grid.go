@@ -996,7 +996,7 @@ func (g *Grid) computeFactors() error {
 			g.ToLonLat(xs, ys, lons, lats)
 			for i := range lons {
 				if math.IsNaN(lons[i]) {
-					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84; the raster CRS covers more than PROJ can invert", c0, r0)
+					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84: they lie outside the map of the raster's CRS (%s), as the corners of a world map in a projection that is not equal-area do, and areasweep needs the true area of every cell; warp the raster to an equal-area CRS, whose cells outside its map may stay (e.g. gdalwarp -t_srs ESRI:54009 IN OUT, Mollweide), or clip it to the map (gdalwarp -te)", c0, r0, crsName(g.WKT))
 				}
 			}
 			area, _ := geodesy.PolygonArea(lats, lons)

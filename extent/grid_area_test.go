@@ -3,6 +3,7 @@ package extent
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -104,5 +105,26 @@ func TestProjectedCellAreas(t *testing.T) {
 				t.Errorf("cell area %.15g km2, want %.15g (true WGS84 area), %.3g relative off", got, tc.want, got/tc.want-1)
 			}
 		})
+	}
+}
+
+// TestWorldMapCornersAdvice: a world grid in Robinson (ESRI:54030), as
+// gdalwarp writes one, has corner cells outside the map that PROJ cannot
+// invert. Its cells' true areas cannot be computed there, so it is
+// refused; before the fix the message said only that the CRS "covers more
+// than PROJ can invert", with nothing to do. It now names the CRS and
+// says to warp the raster to an equal-area CRS or clip it: the advised
+// gdalwarp -t_srs ESRI:54009 of such a raster (a GeoTIFF, which holds
+// Mollweide, where GDAL 3.6 writes Equal Earth into an .aux.xml) then
+// runs (checked by hand, exit 0).
+func TestWorldMapCornersAdvice(t *testing.T) {
+	_, err := NewGrid(180, 90, [6]float64{-17005833.33, 188953.7, 0, 8625154.47, 0, -191670.1}, "ESRI:54030")
+	if err == nil {
+		t.Fatal("world Robinson grid with corners off the map opened; want a refusal")
+	}
+	for _, want := range []string{"column 0 row 0", "Robinson", "outside the map", "gdalwarp -t_srs ESRI:54009", "gdalwarp -te"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message %q lacks %q", err, want)
+		}
 	}
 }
