@@ -962,11 +962,22 @@ func (g *Grid) computeFactors() error {
 	fh := (g.Height + step - 1) / step
 	g.blockFactor = make([]float64, g.factorW*fh)
 	gt := g.GeoTransform
-	const sub = 4 // points per block edge
+	// The outline's edges are geodesics between its points, not the
+	// straight lines of the grid CRS, an error that falls as 1/n^2 with n
+	// points per side (3.5e-7 of a 40 km Web Mercator cell at n = 4, the
+	// number once used). Richardson's extrapolation from n = 2 and n = 1
+	// (the corners alone) removes that term: within 5e-11 of the true area
+	// on cells of up to 40 km (Web Mercator to 72 degrees, polar
+	// stereographic cells holding the pole, UTM), 2e-9 on 200 km polar
+	// cells (pyproj, testdata/geodesy/projected_cells.py). Where the two
+	// differ by more than 1% (a block so distorted that the extrapolation
+	// is not to be trusted) the n = 2 area is kept.
+	const sub = 2 // points per block edge
 	xs := make([]float64, 4*sub)
 	ys := make([]float64, 4*sub)
 	lons := make([]float64, 4*sub)
 	lats := make([]float64, 4*sub)
+	var lons1, lats1 [4]float64
 	for br := 0; br < fh; br++ {
 		for bc := 0; bc < g.factorW; bc++ {
 			c0, r0 := bc*step, br*step
@@ -985,10 +996,16 @@ func (g *Grid) computeFactors() error {
 			g.ToLonLat(xs, ys, lons, lats)
 			for i := range lons {
 				if math.IsNaN(lons[i]) {
-					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84; the raster CRS covers more than PROJ can invert", c0, r0)
+					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84: they lie outside the map of the raster's CRS (%s), as the corners of a world map in a projection that is not equal-area do, and areasweep needs the true area of every cell; warp the raster to an equal-area CRS, whose cells outside its map may stay (e.g. gdalwarp -t_srs ESRI:54009 IN OUT, Mollweide), or clip it to the map (gdalwarp -te)", c0, r0, crsName(g.WKT))
 				}
 			}
 			area, _ := geodesy.PolygonArea(lats, lons)
+			for i := range lons1 {
+				lons1[i], lats1[i] = lons[sub*i], lats[sub*i]
+			}
+			if area1, _ := geodesy.PolygonArea(lats1[:], lons1[:]); math.Abs(area-area1) < 0.01*math.Abs(area) {
+				area += (area - area1) / 3
+			}
 			planar := (x1 - x0) * (y0 - y1)
 			fac := math.Abs(area) / planar
 			if !(fac > 0) || math.IsInf(fac, 0) {

@@ -3,6 +3,7 @@ package extent
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -75,6 +76,55 @@ func TestBlockAreas(t *testing.T) {
 			if v != full[c0+i] {
 				t.Fatalf("row %d cell %d: %v asked in [%d,%d), %v in the whole row", row, c0+i, v, c0, c1, full[c0+i])
 			}
+		}
+	}
+}
+
+// TestProjectedCellAreas checks the area of one cell of grids in
+// projections that are not equal-area (one area ratio per cell) against
+// its true WGS84 area from pyproj (testdata/geodesy/projected_cells.py:
+// Geod.polygon_area_perimeter of the outline densified 4096 points per
+// side), to 1e-9 relative (our tolerance). Before the fix the ratio came
+// from the outline densified 4 points per side alone, whose geodesic edges
+// differ from the grid's straight ones: 3.5e-7 off on a 40 km Web Mercator
+// cell, 2e-7 on polar stereographic ones, 1.3e-8 on a 10 km UTM cell,
+// which moved a whole-raster AUC by 1.4e-8.
+func TestProjectedCellAreas(t *testing.T) {
+	cells := readCellGolden(t, "projected_cells.txt")
+	for _, name := range []string{"Web Mercator 40 km, 58 N", "Web Mercator 40 km, 72 N",
+		"polar stereographic north, pole at a corner", "polar stereographic north, 2000 km from the pole",
+		"polar stereographic south, pole inside", "UTM 33N 10 km", "UTM 33N 2 km", "US survey feet (EPSG:2227)"} {
+		t.Run(name, func(t *testing.T) {
+			tc, g := cells.grid(t, name)
+			defer g.Close()
+			if g.EqualArea || g.factorStep != 1 {
+				t.Fatalf("want one area ratio per cell, got equal-area %v, blocks of %d (%s)", g.EqualArea, g.factorStep, g.AreaMethod)
+			}
+			got := g.RowAreas(tc.r, nil)[tc.c]
+			if math.Abs(got/tc.want-1) > 1e-9 {
+				t.Errorf("cell area %.15g km2, want %.15g (true WGS84 area), %.3g relative off", got, tc.want, got/tc.want-1)
+			}
+		})
+	}
+}
+
+// TestWorldMapCornersAdvice: a world grid in Robinson (ESRI:54030), as
+// gdalwarp writes one, has corner cells outside the map that PROJ cannot
+// invert. Its cells' true areas cannot be computed there, so it is
+// refused; before the fix the message said only that the CRS "covers more
+// than PROJ can invert", with nothing to do. It now names the CRS and
+// says to warp the raster to an equal-area CRS or clip it: the advised
+// gdalwarp -t_srs ESRI:54009 of such a raster (a GeoTIFF, which holds
+// Mollweide, where GDAL 3.6 writes Equal Earth into an .aux.xml) then
+// runs (checked by hand, exit 0).
+func TestWorldMapCornersAdvice(t *testing.T) {
+	_, err := NewGrid(180, 90, [6]float64{-17005833.33, 188953.7, 0, 8625154.47, 0, -191670.1}, "ESRI:54030")
+	if err == nil {
+		t.Fatal("world Robinson grid with corners off the map opened; want a refusal")
+	}
+	for _, want := range []string{"column 0 row 0", "Robinson", "outside the map", "gdalwarp -t_srs ESRI:54009", "gdalwarp -te"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message %q lacks %q", err, want)
 		}
 	}
 }

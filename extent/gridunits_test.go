@@ -41,7 +41,14 @@ func (cells equalAreaCellSet) grid(t *testing.T, name string) (equalAreaCell, *G
 // equalAreaCells reads the golden file, by case name.
 func equalAreaCells(t *testing.T) equalAreaCellSet {
 	t.Helper()
-	b, err := os.ReadFile(filepath.Join("..", "testdata", "geodesy", "equal_area_cells.txt"))
+	return readCellGolden(t, "equal_area_cells.txt")
+}
+
+// readCellGolden reads a golden file of testdata/geodesy in the format of
+// equal_area_cells.txt, by case name.
+func readCellGolden(t *testing.T, file string) equalAreaCellSet {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "testdata", "geodesy", file))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -52,7 +59,7 @@ func equalAreaCells(t *testing.T) equalAreaCellSet {
 		}
 		f := strings.Split(line, " | ")
 		if len(f) != 6 {
-			t.Fatalf("equal_area_cells.txt: bad line %q", line)
+			t.Fatalf("%s: bad line %q", file, line)
 		}
 		var c equalAreaCell
 		c.crs = f[1]
@@ -61,7 +68,7 @@ func equalAreaCells(t *testing.T) equalAreaCellSet {
 			for _, x := range strings.Fields(s) {
 				n, err := strconv.ParseFloat(x, 64)
 				if err != nil {
-					t.Fatalf("equal_area_cells.txt: %q: %v", line, err)
+					t.Fatalf("%s: %q: %v", file, line, err)
 				}
 				v = append(v, n)
 			}
