@@ -6,9 +6,12 @@ import (
 	"math"
 	"os"
 	"regexp"
+	"runtime"
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
+	"time"
 
 	"github.com/airbusgeo/godal"
 
@@ -150,6 +153,10 @@ type Grid struct {
 	// position t between them (factorBracket).
 	colSeg []int32
 	colT   []float64
+	// FactorTime is how long computing blockFactor took, once for every
+	// grid of this geometry the process opens (computeFactors); 0 when
+	// the grid needs none.
+	FactorTime time.Duration
 
 	toLL  *transforms // grid CRS -> WGS84 lon/lat
 	frLL  *transforms // WGS84 lon/lat -> grid CRS
@@ -949,80 +956,182 @@ func sphereRadius(sr *godal.SpatialRef) float64 {
 // centralMeridian finds a WKT1 projection's central meridian.
 var centralMeridian = regexp.MustCompile(`(?i)PARAMETER\["(?:central_meridian|longitude_of_center)",\s*([-+0-9.eE]+)\]`)
 
+// blockFactors are the block factors of a projected grid that is not
+// equal-area (see Grid.blockFactor), with the words of its AreaMethod.
+// Once made they are only read, so grids of one geometry share them.
+type blockFactors struct {
+	factor      []float64
+	step, width int
+	colSeg      []int32
+	colT        []float64
+	method      string
+	took        time.Duration
+	err         error
+}
+
+// factorCache holds the block factors of the last few grid geometries
+// computed, so that the grids a run opens on one geometry (the memory
+// estimate's, the study's and each model's) compute them once: on a
+// grid of a million blocks that takes seconds. Keyed by the CRS's WKT,
+// the geotransform and the size.
+var factorCache struct {
+	sync.Mutex
+	keys    []string
+	entries []*factorEntry
+}
+
+// factorCacheSize is how many geometries factorCache keeps: enough for
+// the studies a batch runs at once (our choice; each holds at most about
+// 8 MB).
+const factorCacheSize = 4
+
+type factorEntry struct {
+	once sync.Once
+	f    blockFactors
+}
+
 // computeFactors fills blockFactor for projected grids that are not
-// equal-area. Blocks are small enough that at most about a million blocks
-// cover the grid.
+// equal-area, from factorCache or by makeFactors, and FactorTime.
 func (g *Grid) computeFactors() error {
+	key := fmt.Sprintf("%s\x00%v\x00%dx%d", g.WKT, g.GeoTransform, g.Width, g.Height)
+	factorCache.Lock()
+	var e *factorEntry
+	for i, k := range factorCache.keys {
+		if k == key {
+			e = factorCache.entries[i]
+			break
+		}
+	}
+	if e == nil {
+		e = &factorEntry{}
+		factorCache.keys = append(factorCache.keys, key)
+		factorCache.entries = append(factorCache.entries, e)
+		if n := len(factorCache.keys); n > factorCacheSize {
+			factorCache.keys = append([]string(nil), factorCache.keys[n-factorCacheSize:]...)
+			factorCache.entries = append([]*factorEntry(nil), factorCache.entries[n-factorCacheSize:]...)
+		}
+	}
+	factorCache.Unlock()
+	e.once.Do(func() { e.f = g.makeFactors() })
+	f := e.f
+	if f.err != nil {
+		return f.err
+	}
+	g.blockFactor, g.factorStep, g.factorW, g.colSeg, g.colT = f.factor, f.step, f.width, f.colSeg, f.colT
+	g.AreaMethod, g.FactorTime = f.method, f.took
+	return nil
+}
+
+// makeFactors computes the block factors of g. Blocks are small enough
+// that at most about a million blocks cover the grid; the rows of blocks
+// are shared among GOMAXPROCS workers (each block on its own, so the
+// factors are the same on any number), and an error is that of the first
+// block in row order that fails.
+func (g *Grid) makeFactors() blockFactors {
+	t0 := time.Now()
 	step := 1
 	for (g.Width/step+1)*(g.Height/step+1) > 1<<20 {
 		step *= 2
 	}
-	g.factorStep = step
-	g.factorW = (g.Width + step - 1) / step
+	fw := (g.Width + step - 1) / step
 	fh := (g.Height + step - 1) / step
-	g.blockFactor = make([]float64, g.factorW*fh)
-	gt := g.GeoTransform
-	// The outline's edges are geodesics between its points, not the
-	// straight lines of the grid CRS, an error that falls as 1/n^2 with n
-	// points per side (3.5e-7 of a 40 km Web Mercator cell at n = 4, the
-	// number once used). Richardson's extrapolation from n = 2 and n = 1
-	// (the corners alone) removes that term: within 5e-11 of the true area
-	// on cells of up to 40 km (Web Mercator to 72 degrees, polar
-	// stereographic cells holding the pole, UTM), 2e-9 on 200 km polar
-	// cells (pyproj, testdata/geodesy/projected_cells.py). Where the two
-	// differ by more than 1% (a block so distorted that the extrapolation
-	// is not to be trusted) the n = 2 area is kept.
-	const sub = 2 // points per block edge
-	xs := make([]float64, 4*sub)
-	ys := make([]float64, 4*sub)
-	lons := make([]float64, 4*sub)
-	lats := make([]float64, 4*sub)
-	var lons1, lats1 [4]float64
-	for br := 0; br < fh; br++ {
-		for bc := 0; bc < g.factorW; bc++ {
-			c0, r0 := bc*step, br*step
-			c1, r1 := min(c0+step, g.Width), min(r0+step, g.Height)
-			x0, x1 := gt[0]+float64(c0)*gt[1], gt[0]+float64(c1)*gt[1]
-			y0, y1 := gt[3]+float64(r0)*gt[5], gt[3]+float64(r1)*gt[5]
-			// Outline counter-clockwise in (x,y): bottom edge west->east, east
-			// edge south->north, top edge east->west, west edge north->south.
-			for k := 0; k < sub; k++ {
-				f := float64(k) / sub
-				xs[k], ys[k] = x0+f*(x1-x0), y1
-				xs[sub+k], ys[sub+k] = x1, y1+f*(y0-y1)
-				xs[2*sub+k], ys[2*sub+k] = x1-f*(x1-x0), y0
-				xs[3*sub+k], ys[3*sub+k] = x0, y0-f*(y0-y1)
-			}
-			g.ToLonLat(xs, ys, lons, lats)
-			for i := range lons {
-				if math.IsNaN(lons[i]) {
-					return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84: they lie outside the map of the raster's CRS (%s), as the corners of a world map in a projection that is not equal-area do, and areasweep needs the true area of every cell; warp the raster to an equal-area CRS, whose cells outside its map may stay (e.g. gdalwarp -t_srs ESRI:54009 IN OUT, Mollweide), or clip it to the map (gdalwarp -te)", c0, r0, crsName(g.WKT))
+	f := blockFactors{factor: make([]float64, fw*fh), step: step, width: fw}
+	rowErr := make([]error, fh)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), fh); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var bf blockFactorer
+			for {
+				br := int(next.Add(1)) - 1
+				if br >= fh {
+					return
 				}
+				rowErr[br] = bf.row(g, br, step, f.factor[br*fw:(br+1)*fw])
 			}
-			area, _ := geodesy.PolygonArea(lats, lons)
-			for i := range lons1 {
-				lons1[i], lats1[i] = lons[sub*i], lats[sub*i]
-			}
-			if area1, _ := geodesy.PolygonArea(lats1[:], lons1[:]); math.Abs(area-area1) < 0.01*math.Abs(area) {
-				area += (area - area1) / 3
-			}
-			planar := (x1 - x0) * (y0 - y1)
-			fac := math.Abs(area) / planar
-			if !(fac > 0) || math.IsInf(fac, 0) {
-				return fmt.Errorf("extent: cells near column %d row %d lie outside the area where the raster CRS is defined (their true area is %g); check the raster's CRS and georeferencing with gdalinfo", c0, r0, math.Abs(area))
-			}
-			g.blockFactor[br*g.factorW+bc] = fac
+		}()
+	}
+	wg.Wait()
+	for _, err := range rowErr {
+		if err != nil {
+			f.err = err
+			return f
 		}
 	}
-	g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)
+	f.method = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid)", step, step)
 	if step > 1 {
-		g.colSeg = make([]int32, g.Width)
-		g.colT = make([]float64, g.Width)
-		for c := range g.colSeg {
-			k0, _, t := factorBracket(float64(c)+0.5, step, g.factorW, g.Width)
-			g.colSeg[c], g.colT[c] = int32(k0), t
+		f.colSeg = make([]int32, g.Width)
+		f.colT = make([]float64, g.Width)
+		for c := range f.colSeg {
+			k0, _, t := factorBracket(float64(c)+0.5, step, fw, g.Width)
+			f.colSeg[c], f.colT[c] = int32(k0), t
 		}
-		g.AreaMethod = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid), interpolated bilinearly between block centres", step, step)
+		f.method = fmt.Sprintf("planar area scaled by the true/planar area ratio of %dx%d-cell blocks (WGS84 ellipsoid), interpolated bilinearly between block centres", step, step)
+	}
+	f.took = time.Since(t0)
+	return f
+}
+
+// factorSub is the number of points per block edge of a block's outline.
+// The outline's edges are geodesics between its points, not the straight
+// lines of the grid CRS, an error that falls as 1/n^2 with n points per
+// side (3.5e-7 of a 40 km Web Mercator cell at n = 4, the number once
+// used). Richardson's extrapolation from n = 2 and n = 1 (the corners
+// alone) removes that term: within 5e-11 of the true area on cells of up
+// to 40 km (Web Mercator to 72 degrees, polar stereographic cells holding
+// the pole, UTM), 2e-9 on 200 km polar cells (pyproj,
+// testdata/geodesy/projected_cells.py). Where the two differ by more than
+// 1% (a block so distorted that the extrapolation is not to be trusted)
+// the n = 2 area is kept.
+const factorSub = 2
+
+// blockFactorer is one worker's scratch for the block factors.
+type blockFactorer struct {
+	xs, ys, lons, lats [4 * factorSub]float64
+	lons1, lats1       [4]float64
+}
+
+// row computes the factors of block row br (blocks of step cells) into
+// dst.
+func (b *blockFactorer) row(g *Grid, br, step int, dst []float64) error {
+	const sub = factorSub
+	gt := g.GeoTransform
+	xs, ys, lons, lats := b.xs[:], b.ys[:], b.lons[:], b.lats[:]
+	for bc := range dst {
+		c0, r0 := bc*step, br*step
+		c1, r1 := min(c0+step, g.Width), min(r0+step, g.Height)
+		x0, x1 := gt[0]+float64(c0)*gt[1], gt[0]+float64(c1)*gt[1]
+		y0, y1 := gt[3]+float64(r0)*gt[5], gt[3]+float64(r1)*gt[5]
+		// Outline counter-clockwise in (x,y): bottom edge west->east, east
+		// edge south->north, top edge east->west, west edge north->south.
+		for k := 0; k < sub; k++ {
+			f := float64(k) / sub
+			xs[k], ys[k] = x0+f*(x1-x0), y1
+			xs[sub+k], ys[sub+k] = x1, y1+f*(y0-y1)
+			xs[2*sub+k], ys[2*sub+k] = x1-f*(x1-x0), y0
+			xs[3*sub+k], ys[3*sub+k] = x0, y0-f*(y0-y1)
+		}
+		g.ToLonLat(xs, ys, lons, lats)
+		for i := range lons {
+			if math.IsNaN(lons[i]) {
+				return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84: they lie outside the map of the raster's CRS (%s), as the corners of a world map in a projection that is not equal-area do, and areasweep needs the true area of every cell; warp the raster to an equal-area CRS, whose cells outside its map may stay (e.g. gdalwarp -t_srs ESRI:54009 IN OUT, Mollweide), or clip it to the map (gdalwarp -te)", c0, r0, crsName(g.WKT))
+			}
+		}
+		area, _ := geodesy.PolygonArea(lats, lons)
+		for i := range b.lons1 {
+			b.lons1[i], b.lats1[i] = lons[sub*i], lats[sub*i]
+		}
+		if area1, _ := geodesy.PolygonArea(b.lats1[:], b.lons1[:]); math.Abs(area-area1) < 0.01*math.Abs(area) {
+			area += (area - area1) / 3
+		}
+		planar := (x1 - x0) * (y0 - y1)
+		fac := math.Abs(area) / planar
+		if !(fac > 0) || math.IsInf(fac, 0) {
+			return fmt.Errorf("extent: cells near column %d row %d lie outside the area where the raster CRS is defined (their true area is %g); check the raster's CRS and georeferencing with gdalinfo", c0, r0, math.Abs(area))
+		}
+		dst[bc] = fac
 	}
 	return nil
 }

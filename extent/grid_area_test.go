@@ -3,6 +3,8 @@ package extent
 import (
 	"math"
 	"math/rand/v2"
+	"runtime"
+	"slices"
 	"strings"
 	"testing"
 
@@ -126,5 +128,55 @@ func TestWorldMapCornersAdvice(t *testing.T) {
 		if !strings.Contains(err.Error(), want) {
 			t.Errorf("message %q lacks %q", err, want)
 		}
+	}
+}
+
+// TestBlockFactorsShared: grids of one geometry compute their block
+// factors once (the second shares the first's, as the memory estimate's,
+// the study's and each model's grid of a run do: before, each computed
+// them, about 6 s apiece on a UTM grid of 2000 x 2000 cells), another
+// geometry gets its own, the cache keeps at most factorCacheSize
+// geometries, and the factors are the same computed on one worker as on
+// several.
+func TestBlockFactorsShared(t *testing.T) {
+	gt := [6]float64{300000, 2000, 0, 5600000, 0, -2000}
+	open := func(gt [6]float64) *Grid {
+		g, err := NewGrid(300, 200, gt, "EPSG:32633")
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(g.Close)
+		if g.EqualArea || len(g.blockFactor) == 0 || g.FactorTime <= 0 {
+			t.Fatalf("want block factors and their time, got equal-area %v, %d factors, %v", g.EqualArea, len(g.blockFactor), g.FactorTime)
+		}
+		return g
+	}
+	g1, g2 := open(gt), open(gt)
+	if &g1.blockFactor[0] != &g2.blockFactor[0] || g1.FactorTime != g2.FactorTime {
+		t.Errorf("a second grid of the same geometry computed its factors again")
+	}
+	moved := gt
+	moved[3] += 2000
+	if g3 := open(moved); &g3.blockFactor[0] == &g1.blockFactor[0] {
+		t.Errorf("a grid one row to the north shares the factors of the first")
+	}
+	for k := 0; k < factorCacheSize+2; k++ {
+		other := gt
+		other[0] += float64(k+2) * 2000
+		open(other)
+	}
+	if n := len(factorCache.keys); n > factorCacheSize || n != len(factorCache.entries) {
+		t.Errorf("cache holds %d keys and %d entries, want at most %d", n, len(factorCache.entries), factorCacheSize)
+	}
+	prev := runtime.GOMAXPROCS(1)
+	one := g1.makeFactors()
+	runtime.GOMAXPROCS(4)
+	many := g1.makeFactors()
+	runtime.GOMAXPROCS(prev)
+	if one.err != nil || many.err != nil {
+		t.Fatal(one.err, many.err)
+	}
+	if !slices.Equal(one.factor, many.factor) || !slices.Equal(one.factor, g1.blockFactor) {
+		t.Errorf("factors differ between 1 and 4 workers")
 	}
 }
