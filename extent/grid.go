@@ -1037,19 +1037,22 @@ func (g *Grid) makeFactors() blockFactors {
 	fh := (g.Height + step - 1) / step
 	f := blockFactors{factor: make([]float64, fw*fh), step: step, width: fw}
 	rowErr := make([]error, fh)
+	chunks := (fh + factorChunk - 1) / factorChunk
 	var next atomic.Int64
 	var wg sync.WaitGroup
-	for w := 0; w < min(runtime.GOMAXPROCS(0), fh); w++ {
+	for w := 0; w < min(runtime.GOMAXPROCS(0), chunks); w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			var bf blockFactorer
+			bf := newBlockFactorer(g, step, fw)
 			for {
-				br := int(next.Add(1)) - 1
-				if br >= fh {
+				k := int(next.Add(1)) - 1
+				if k >= chunks {
 					return
 				}
-				rowErr[br] = bf.row(g, br, step, f.factor[br*fw:(br+1)*fw])
+				for br := k * factorChunk; br < min((k+1)*factorChunk, fh); br++ {
+					rowErr[br] = bf.row(br, br == k*factorChunk, f.factor[br*fw:(br+1)*fw])
+				}
 			}
 		}()
 	}
@@ -1087,43 +1090,156 @@ func (g *Grid) makeFactors() blockFactors {
 // the n = 2 area is kept.
 const factorSub = 2
 
-// blockFactorer is one worker's scratch for the block factors.
+// factorChunk is the number of block rows a worker of makeFactors takes
+// at a time: each row shares its top line's points and edges with the row
+// above, computed again only at a chunk's first row (our choice: 3% more
+// edges for chunks that balance two to a few dozen workers).
+const factorChunk = 32
+
+// blockFactorer is one worker's state for the block factors: the grid,
+// the blocks' columns, and the points and edge areas of the line of
+// block corners and edge midpoints on top of the current block row
+// (kept from the row above) and at its bottom.
 type blockFactorer struct {
-	xs, ys, lons, lats [4 * factorSub]float64
-	lons1, lats1       [4]float64
+	g        *Grid
+	step, fw int
+	xb, xm   []float64 // block column edges (fw+1) and midpoints (fw)
+	top, bot factorLine
+	mid      factorLine // the points at the rows' mid height on each xb
+	vLo, vHi []float64  // S12 of the vertical half edges, south to north
+	vFull    []float64  // S12 of the whole vertical edges
+	e1, e2   []float64  // scratch: edge ends
+	e3, e4   []float64
+	poly     blockPolygon
 }
 
-// row computes the factors of block row br (blocks of step cells) into
-// dst.
-func (b *blockFactorer) row(g *Grid, br, step int, dst []float64) error {
-	const sub = factorSub
+// factorLine holds the points of one horizontal line of the block grid
+// (2 fw + 1: corner, midpoint, corner, ..., corner; fw + 1 for mid) and
+// the S12 of its half edges and whole edges, west to east.
+type factorLine struct {
+	xs, ys, lons, lats []float64
+	half, full         []float64
+}
+
+// blockPolygon is the scratch of one block's outline for PolygonArea.
+type blockPolygon struct {
+	lons, lats   [4 * factorSub]float64
+	lons1, lats1 [4]float64
+}
+
+func newBlockFactorer(g *Grid, step, fw int) *blockFactorer {
 	gt := g.GeoTransform
-	xs, ys, lons, lats := b.xs[:], b.ys[:], b.lons[:], b.lats[:]
-	for bc := range dst {
-		c0, r0 := bc*step, br*step
-		c1, r1 := min(c0+step, g.Width), min(r0+step, g.Height)
-		x0, x1 := gt[0]+float64(c0)*gt[1], gt[0]+float64(c1)*gt[1]
-		y0, y1 := gt[3]+float64(r0)*gt[5], gt[3]+float64(r1)*gt[5]
-		// Outline counter-clockwise in (x,y): bottom edge west->east, east
-		// edge south->north, top edge east->west, west edge north->south.
-		for k := 0; k < sub; k++ {
-			f := float64(k) / sub
-			xs[k], ys[k] = x0+f*(x1-x0), y1
-			xs[sub+k], ys[sub+k] = x1, y1+f*(y0-y1)
-			xs[2*sub+k], ys[2*sub+k] = x1-f*(x1-x0), y0
-			xs[3*sub+k], ys[3*sub+k] = x0, y0-f*(y0-y1)
+	b := &blockFactorer{g: g, step: step, fw: fw, xb: make([]float64, fw+1), xm: make([]float64, fw)}
+	for bc := 0; bc <= fw; bc++ {
+		b.xb[bc] = gt[0] + float64(min(bc*step, g.Width))*gt[1]
+	}
+	for bc := 0; bc < fw; bc++ {
+		x0, x1 := b.xb[bc], b.xb[bc+1]
+		b.xm[bc] = x0 + 0.5*(x1-x0)
+	}
+	line := func(n int) factorLine {
+		return factorLine{xs: make([]float64, n), ys: make([]float64, n), lons: make([]float64, n), lats: make([]float64, n),
+			half: make([]float64, 2*fw), full: make([]float64, fw)}
+	}
+	b.top, b.bot, b.mid = line(2*fw+1), line(2*fw+1), line(fw+1)
+	b.vLo, b.vHi, b.vFull = make([]float64, fw+1), make([]float64, fw+1), make([]float64, fw+1)
+	n := 2 * fw
+	b.e1, b.e2, b.e3, b.e4 = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	return b
+}
+
+// fill transforms the points of the line at height y: the block corners
+// and edge midpoints (mid false) or the corners alone (mid true), then
+// (mid false) the S12 of its half and whole edges west to east.
+func (b *blockFactorer) fill(l *factorLine, y float64, mid bool) {
+	if mid {
+		copy(l.xs, b.xb)
+	} else {
+		for bc := 0; bc < b.fw; bc++ {
+			l.xs[2*bc], l.xs[2*bc+1] = b.xb[bc], b.xm[bc]
 		}
-		g.ToLonLat(xs, ys, lons, lats)
-		for i := range lons {
-			if math.IsNaN(lons[i]) {
+		l.xs[2*b.fw] = b.xb[b.fw]
+	}
+	for i := range l.ys {
+		l.ys[i] = y
+	}
+	b.g.ToLonLat(l.xs, l.ys, l.lons, l.lats)
+	if mid {
+		return
+	}
+	n := 2 * b.fw
+	geodesy.EdgeAreas(l.lats[:n], l.lons[:n], l.lats[1:], l.lons[1:], l.half)
+	for bc := 0; bc < b.fw; bc++ {
+		b.e1[bc], b.e2[bc], b.e3[bc], b.e4[bc] = l.lats[2*bc], l.lons[2*bc], l.lats[2*bc+2], l.lons[2*bc+2]
+	}
+	geodesy.EdgeAreas(b.e1, b.e2, b.e3, b.e4, l.full)
+}
+
+// row computes the factors of block row br into dst (first: the row
+// above's bottom line is not at hand). A block's area is that of its
+// outline through its corners and edge midpoints, Richardson-extrapolated
+// with that through its corners alone (see factorSub), each the sum of
+// its edges' S12 (geodesy.EdgeAreas; minus the area, which only its
+// magnitude is taken of), every edge shared with the
+// neighbouring block computed once; a block whose outline could cross the
+// prime meridian or hold a pole (its corners' longitudes of both signs,
+// or a latitude beyond 89 degrees) takes geodesy.PolygonArea, which
+// corrects for both.
+func (b *blockFactorer) row(br int, first bool, dst []float64) error {
+	g, step, fw := b.g, b.step, b.fw
+	gt := g.GeoTransform
+	r0, r1 := br*step, min(br*step+step, g.Height)
+	y0, y1 := gt[3]+float64(r0)*gt[5], gt[3]+float64(r1)*gt[5]
+	if first {
+		b.fill(&b.top, y0, false)
+	}
+	b.fill(&b.bot, y1, false)
+	b.fill(&b.mid, y1+0.5*(y0-y1), true)
+	for j := 0; j <= fw; j++ {
+		b.e1[j], b.e2[j], b.e3[j], b.e4[j] = b.bot.lats[2*j], b.bot.lons[2*j], b.mid.lats[j], b.mid.lons[j]
+	}
+	geodesy.EdgeAreas(b.e1[:fw+1], b.e2[:fw+1], b.e3[:fw+1], b.e4[:fw+1], b.vLo)
+	for j := 0; j <= fw; j++ {
+		b.e1[j], b.e2[j], b.e3[j], b.e4[j] = b.mid.lats[j], b.mid.lons[j], b.top.lats[2*j], b.top.lons[2*j]
+	}
+	geodesy.EdgeAreas(b.e1[:fw+1], b.e2[:fw+1], b.e3[:fw+1], b.e4[:fw+1], b.vHi)
+	for j := 0; j <= fw; j++ {
+		b.e1[j], b.e2[j], b.e3[j], b.e4[j] = b.bot.lats[2*j], b.bot.lons[2*j], b.top.lats[2*j], b.top.lons[2*j]
+	}
+	geodesy.EdgeAreas(b.e1[:fw+1], b.e2[:fw+1], b.e3[:fw+1], b.e4[:fw+1], b.vFull)
+	defer func() { b.top, b.bot = b.bot, b.top }()
+	p := &b.poly
+	for bc := range dst {
+		c0 := bc * step
+		x0, x1 := b.xb[bc], b.xb[bc+1]
+		// The outline counter-clockwise in (x,y): bottom edge west->east,
+		// east edge south->north, top edge east->west, west edge
+		// north->south.
+		p.lons = [4 * factorSub]float64{b.bot.lons[2*bc], b.bot.lons[2*bc+1], b.bot.lons[2*bc+2], b.mid.lons[bc+1],
+			b.top.lons[2*bc+2], b.top.lons[2*bc+1], b.top.lons[2*bc], b.mid.lons[bc]}
+		p.lats = [4 * factorSub]float64{b.bot.lats[2*bc], b.bot.lats[2*bc+1], b.bot.lats[2*bc+2], b.mid.lats[bc+1],
+			b.top.lats[2*bc+2], b.top.lats[2*bc+1], b.top.lats[2*bc], b.mid.lats[bc]}
+		east, west, polar := false, false, false
+		for i, lon := range p.lons {
+			if math.IsNaN(lon) {
 				return fmt.Errorf("extent: cells near column %d row %d cannot be transformed to WGS84: they lie outside the map of the raster's CRS (%s), as the corners of a world map in a projection that is not equal-area do, and areasweep needs the true area of every cell; warp the raster to an equal-area CRS, whose cells outside its map may stay (e.g. gdalwarp -t_srs ESRI:54009 IN OUT, Mollweide), or clip it to the map (gdalwarp -te)", c0, r0, crsName(g.WKT))
 			}
+			east, west = east || lon > 0, west || !(lon > 0)
+			polar = polar || math.Abs(p.lats[i]) > 89
 		}
-		area, _ := geodesy.PolygonArea(lats, lons)
-		for i := range b.lons1 {
-			b.lons1[i], b.lats1[i] = lons[sub*i], lats[sub*i]
+		var area, area1 float64
+		if east && west || polar {
+			area, _ = geodesy.PolygonArea(p.lats[:], p.lons[:])
+			for i := range p.lons1 {
+				p.lons1[i], p.lats1[i] = p.lons[factorSub*i], p.lats[factorSub*i]
+			}
+			area1, _ = geodesy.PolygonArea(p.lats1[:], p.lons1[:])
+		} else {
+			area = exactSum(b.bot.half[2*bc], b.bot.half[2*bc+1], b.vLo[bc+1], b.vHi[bc+1],
+				-b.top.half[2*bc+1], -b.top.half[2*bc], -b.vHi[bc], -b.vLo[bc])
+			area1 = exactSum(b.bot.full[bc], b.vFull[bc+1], -b.top.full[bc], -b.vFull[bc], 0, 0, 0, 0)
 		}
-		if area1, _ := geodesy.PolygonArea(b.lats1[:], b.lons1[:]); math.Abs(area-area1) < 0.01*math.Abs(area) {
+		if math.Abs(area-area1) < 0.01*math.Abs(area) {
 			area += (area - area1) / 3
 		}
 		planar := (x1 - x0) * (y0 - y1)
@@ -1134,6 +1250,23 @@ func (b *blockFactorer) row(g *Grid, br, step int, dst []float64) error {
 		dst[bc] = fac
 	}
 	return nil
+}
+
+// exactSum returns the sum of eight terms, Neumaier's compensated
+// summation (as PolygonArea's own accumulator, the edges' S12 are far
+// larger than their sum, a block's area).
+func exactSum(v0, v1, v2, v3, v4, v5, v6, v7 float64) float64 {
+	sum, c := 0.0, 0.0
+	for _, v := range [8]float64{v0, v1, v2, v3, v4, v5, v6, v7} {
+		t := sum + v
+		if math.Abs(sum) >= math.Abs(v) {
+			c += (sum - t) + v
+		} else {
+			c += (v - t) + sum
+		}
+		sum = t
+	}
+	return sum + c
 }
 
 // SameAs reports how g and o differ, or "" when they are one grid.

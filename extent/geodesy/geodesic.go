@@ -2,6 +2,8 @@ package geodesy
 
 /*
 #cgo pkg-config: proj
+#cgo noescape areasweep_geod_edgeareas
+#cgo nocallback areasweep_geod_edgeareas
 #cgo noescape areasweep_geod_polygonarea
 #cgo nocallback areasweep_geod_polygonarea
 #cgo noescape areasweep_geod_densify
@@ -30,6 +32,16 @@ static areasweep_dir areasweep_geod_direct(const struct geod_geodesic* g,
 	areasweep_dir r;
 	geod_direct(g, lat1, lon1, azi1, s12, &r.lat2, &r.lon2, &r.azi2);
 	return r;
+}
+
+// areasweep_geod_edgeareas sets S12[i] to the area between the geodesic
+// from (lat1[i],lon1[i]) to (lat2[i],lon2[i]) and the equator.
+static void areasweep_geod_edgeareas(const struct geod_geodesic* g,
+		const double* lat1, const double* lon1, const double* lat2, const double* lon2,
+		int n, double* S12) {
+	for (int i = 0; i < n; i++) {
+		geod_geninverse(g, lat1[i], lon1[i], lat2[i], lon2[i], 0, 0, 0, 0, 0, 0, &S12[i]);
+	}
 }
 
 static void areasweep_geod_polygonarea(const struct geod_geodesic* g,
@@ -163,6 +175,30 @@ func PolygonArea(lats, lons []float64) (area, perimeter float64) {
 		(*C.double)(unsafe.Pointer(&lats[0])), (*C.double)(unsafe.Pointer(&lons[0])),
 		C.int(n), &a, &p)
 	return float64(a), float64(p)
+}
+
+// EdgeAreas sets S12[i], for each i < len(S12), to the signed area (m^2)
+// between the WGS84 geodesic from (lat1[i], lon1[i]) to (lat2[i], lon2[i])
+// (degrees) and the equator: Karney's S12 (2013, sec. 6, via PROJ's
+// geod_geninverse), the term PolygonArea adds up for each edge: minus the
+// sum of the S12 of a polygon's edges, in order, is its PolygonArea when
+// no edge crosses the prime meridian and it holds no pole (PolygonArea's
+// corrections for those are then zero), so polygons that share edges can
+// share their S12 (the reverse edge has -S12). The
+// other slices must be at least as long as S12. Safe for concurrent use.
+func EdgeAreas(lat1, lon1, lat2, lon2, S12 []float64) {
+	n := len(S12)
+	if n == 0 {
+		return
+	}
+	_, _, _, _ = lat1[n-1], lon1[n-1], lat2[n-1], lon2[n-1]
+	if n > math.MaxInt32 {
+		panic("geodesy: EdgeAreas: too many edges")
+	}
+	C.areasweep_geod_edgeareas(&wgs84.g,
+		(*C.double)(unsafe.Pointer(&lat1[0])), (*C.double)(unsafe.Pointer(&lon1[0])),
+		(*C.double)(unsafe.Pointer(&lat2[0])), (*C.double)(unsafe.Pointer(&lon2[0])),
+		C.int(n), (*C.double)(unsafe.Pointer(&S12[0])))
 }
 
 // MaxDensifySegments caps the number of segments Densify produces, so that a

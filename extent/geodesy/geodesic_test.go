@@ -309,3 +309,43 @@ func BenchmarkDensify1000km10km(b *testing.B) {
 		Densify(52.52, 13.405, 48.8566, 2.3522, 10000)
 	}
 }
+
+// TestEdgeAreas: the S12 of a polygon's edges, added up, are minus its
+// PolygonArea (PROJ's geod_polygonarea) where no edge crosses the prime
+// meridian and it holds no pole, on quadrilaterals and an octagon of a
+// few metres to 200 km in both hemispheres, counter-clockwise and
+// clockwise; the reversed edge has minus the S12 (to 1e-9 of the edge's
+// own S12, our tolerance for rounding).
+func TestEdgeAreas(t *testing.T) {
+	for _, tc := range []struct {
+		name       string
+		lats, lons []float64
+	}{
+		{"1 km at 50 N", []float64{50, 50, 50.009, 50.009}, []float64{10, 10.014, 10.014, 10}},
+		{"5 m at 45 S", []float64{-45, -45, -44.99995, -44.99995}, []float64{-70, -69.99994, -69.99994, -70}},
+		{"200 km at 60 N, clockwise", []float64{60, 61.8, 61.8, 60}, []float64{20, 20, 23.6, 23.6}},
+		{"octagon near the equator", []float64{-0.1, -0.1, -0.1, 0, 0.1, 0.1, 0.1, 0}, []float64{100, 100.1, 100.2, 100.2, 100.2, 100.1, 100, 100}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			n := len(tc.lats)
+			lat2, lon2 := append(tc.lats[1:n:n], tc.lats[0]), append(tc.lons[1:n:n], tc.lons[0])
+			s12 := make([]float64, n)
+			EdgeAreas(tc.lats, tc.lons, lat2, lon2, s12)
+			sum := 0.0
+			for _, v := range s12 {
+				sum += v
+			}
+			want, _ := PolygonArea(tc.lats, tc.lons)
+			if want == 0 || math.Abs(-sum/want-1) > 1e-9 {
+				t.Errorf("sum of S12 %.12g m2, PolygonArea %.12g (want minus the sum)", sum, want)
+			}
+			back := make([]float64, n)
+			EdgeAreas(lat2, lon2, tc.lats, tc.lons, back)
+			for i := range s12 {
+				if math.Abs(back[i]+s12[i]) > 1e-9*math.Abs(s12[i]) {
+					t.Errorf("edge %d: S12 %.12g forward, %.12g back", i, s12[i], back[i])
+				}
+			}
+		})
+	}
+}
