@@ -231,6 +231,10 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 	g := b.g
 	band, maxD := fl.band, fl.maxD
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
+	// The centre and the corners, in one transformation on a projected
+	// grid.
+	k0, k1 := r0-band, r1-1-band
+	pts.makeCells([]int{kc, k0, k0, k1, k1}, []int{cc, c0, c1 - 1, c0, c1 - 1})
 	clat, clon := pts.ll(kc, cc)
 	if math.IsNaN(clat) {
 		return false, math.Inf(1), 0
@@ -650,6 +654,9 @@ type bandPoints struct {
 	stepOK       bool
 	stepK, stepC int
 	stepP        [3]float64
+	// makeCells' scratch: the coordinates it transforms and their cells.
+	gx, gy []float64
+	gk, gc []int
 }
 
 // stepUpper returns an upper bound on the geodesic distance between the
@@ -733,6 +740,35 @@ func (p *bandPoints) make(k, c0, c1 int) {
 		}
 		p.g.ToLonLat(lons[a:c], lats[a:c], lons[a:c], lats[a:c])
 	}
+}
+
+// makeCells makes, in one call, the coordinates of the cells (band row
+// ks[i], column cs[i]) that have none yet (projected grids; a no-op on
+// latitude-longitude ones): the few cells a tile is probed at (its centre
+// and corners) would otherwise cost a transformation call each, most of
+// the time PROJ takes on such a grid. Each cell gets the coordinates make
+// gives it.
+func (p *bandPoints) makeCells(ks, cs []int) {
+	if p.perRow {
+		return
+	}
+	xs, ys, gk, gc := p.gx[:0], p.gy[:0], p.gk[:0], p.gc[:0]
+	for i, k := range ks {
+		c := cs[i]
+		if p.have[k][c] {
+			continue
+		}
+		p.have[k][c] = true // made below; a cell listed twice is made once
+		x, y := p.g.Centre(c, p.rowOf[k])
+		xs, ys, gk, gc = append(xs, x), append(ys, y), append(gk, k), append(gc, c)
+	}
+	if len(xs) > 0 {
+		p.g.ToLonLat(xs, ys, xs, ys)
+		for j, k := range gk {
+			p.lons[k][gc[j]], p.lats[k][gc[j]] = xs[j], ys[j]
+		}
+	}
+	p.gx, p.gy, p.gk, p.gc = xs, ys, gk, gc
 }
 
 // ll returns the latitude and longitude of cell (band row k, column c),

@@ -526,6 +526,8 @@ func (hc hullCap) side(pts *bandPoints, k0, k1, c0, c1 int) int {
 	const deg = 180 / math.Pi
 	box := hc.box
 	kc, cc := (k0+k1)/2, (c0+c1)/2
+	// The centre and the corners, in one transformation (makeCells).
+	pts.makeCells([]int{kc, k0, k0, k1 - 1, k1 - 1}, []int{cc, c0, c1 - 1, c0, c1 - 1})
 	clat, clon := pts.ll(kc, cc)
 	if math.IsNaN(clat) {
 		return 0
