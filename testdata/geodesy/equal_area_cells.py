@@ -7,7 +7,7 @@
 # planar area for comparison. Writes equal_area_cells.txt, one line per
 # case: name | CRS | geotransform | width height col row | true km2 | planar km2.
 import sys
-import numpy as np, pyproj
+import cellarea
 
 regional = (1000000.0, 10000.0, 0, 6000000.0, 0, -10000.0)
 glob = (-18100000.0, 100000.0, 0, 9100000.0, 0, -100000.0)
@@ -32,19 +32,4 @@ cases = [
   (-250000.0, 5000.0, 0, 200000.0, 0, -5000.0), 10, 10, 3, 2),
 ]
 k = int(sys.argv[1]) if len(sys.argv) > 1 else 4096
-G = pyproj.Geod(ellps='WGS84')
-with open('equal_area_cells.txt', 'w') as out:
-    out.write('# written by equal_area_cells.py (pyproj %s, PROJ %s): name | CRS | geotransform | width height col row | true km2 | planar km2\n'
-              % (pyproj.__version__, pyproj.proj_version_str))
-    for name, crs, gt, w, h, c, r in cases:
-        tr = pyproj.Transformer.from_crs(pyproj.CRS(crs), 'EPSG:4326', always_xy=True)
-        x0, x1 = gt[0] + c * gt[1], gt[0] + (c + 1) * gt[1]
-        y0, y1 = gt[3] + r * gt[5], gt[3] + (r + 1) * gt[5]
-        t = np.arange(k) / k
-        xs = np.concatenate([x0 + t * (x1 - x0), np.full(k, x1), x1 - t * (x1 - x0), np.full(k, x0)])
-        ys = np.concatenate([np.full(k, y1), y1 + t * (y0 - y1), np.full(k, y0), y0 - t * (y0 - y1)])
-        lon, lat = tr.transform(xs, ys)
-        a, _ = G.polygon_area_perimeter(lon, lat)
-        unit = pyproj.CRS(crs).axis_info[0].unit_conversion_factor
-        out.write('%s | %s | %s | %d %d %d %d | %.12g | %.12g\n' % (
-            name, crs, ' '.join(repr(v) for v in gt), w, h, c, r, abs(a) / 1e6, abs(gt[1] * gt[5]) * unit * unit / 1e6))
+cellarea.write('equal_area_cells.txt', 'equal_area_cells.py', cases, k, 12)

@@ -8,7 +8,7 @@
 # Writes projected_cells.txt in the format of equal_area_cells.txt:
 # name | CRS | geotransform | width height col row | true km2 | planar km2.
 import sys
-import numpy as np, pyproj
+import cellarea
 
 merc = (0.0, 40000.0, 0, 12000000.0, 0, -40000.0)
 cases = [
@@ -22,19 +22,4 @@ cases = [
  ('US survey feet (EPSG:2227)', 'EPSG:2227', (5900000.0, 5000.0, 0, 2400000.0, 0, -5000.0), 120, 100, 60, 50),
 ]
 k = int(sys.argv[1]) if len(sys.argv) > 1 else 4096
-G = pyproj.Geod(ellps='WGS84')
-with open('projected_cells.txt', 'w') as out:
-    out.write('# written by projected_cells.py (pyproj %s, PROJ %s): name | CRS | geotransform | width height col row | true km2 | planar km2\n'
-              % (pyproj.__version__, pyproj.proj_version_str))
-    for name, crs, gt, w, h, c, r in cases:
-        tr = pyproj.Transformer.from_crs(pyproj.CRS(crs), 'EPSG:4326', always_xy=True)
-        x0, x1 = gt[0] + c * gt[1], gt[0] + (c + 1) * gt[1]
-        y0, y1 = gt[3] + r * gt[5], gt[3] + (r + 1) * gt[5]
-        t = np.arange(k) / k
-        xs = np.concatenate([x0 + t * (x1 - x0), np.full(k, x1), x1 - t * (x1 - x0), np.full(k, x0)])
-        ys = np.concatenate([np.full(k, y1), y1 + t * (y0 - y1), np.full(k, y0), y0 - t * (y0 - y1)])
-        lon, lat = tr.transform(xs, ys)
-        a, _ = G.polygon_area_perimeter(lon, lat)
-        unit = pyproj.CRS(crs).axis_info[0].unit_conversion_factor
-        out.write('%s | %s | %s | %d %d %d %d | %.15g | %.15g\n' % (
-            name, crs, ' '.join(repr(v) for v in gt), w, h, c, r, abs(a) / 1e6, abs(gt[1] * gt[5]) * unit * unit / 1e6))
+cellarea.write('projected_cells.txt', 'projected_cells.py', cases, k, 15)
