@@ -6,6 +6,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -208,30 +209,49 @@ func notFileInTheWay(dir string, names ...string) error {
 // a killed earlier version are removed; any other file in figures/ is the
 // user's and stays.
 //
-// moved counts the files moved into dir; an error names the path it
-// failed on and its cause.
+// It is all or nothing: the files it replaces or removes are first set
+// aside in a folder inside stage, and only then are the new ones moved
+// in; a move that fails (an immutable file, a folder that changed
+// meanwhile) puts everything back. A target that is a folder or another
+// non-file is refused before anything moves. moved counts the report
+// files in place when it returns: every one on success, 0 after a
+// failure put back, and those it could not put back otherwise; an error
+// names the path it failed on and its cause.
 func placeReport(stage, dir string, moved *int) error {
-	place := func(from, to string) error {
-		if err := os.Rename(from, to); err != nil {
-			return fmt.Errorf("cannot replace %s (%w)", to, outdir.Cause(err))
-		}
-		*moved++
-		return nil
-	}
 	figDir := filepath.Join(dir, "figures")
-	if err := os.Mkdir(figDir, outdir.MkdirPerm()); err != nil && !errors.Is(err, fs.ErrExist) {
+	made := false
+	if err := os.Mkdir(figDir, outdir.MkdirPerm()); err == nil {
+		made = true
+	} else if !errors.Is(err, fs.ErrExist) {
 		return fmt.Errorf("cannot create %s (%w)", figDir, outdir.Cause(err))
 	}
 	figs, err := os.ReadDir(filepath.Join(stage, "figures"))
 	if err != nil {
 		return err
 	}
+	type move struct{ from, to string }
+	var moves []move
 	drawn := map[string]bool{}
 	for _, f := range figs {
 		drawn[f.Name()] = true
-		if err := place(filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())); err != nil {
-			return err
+		moves = append(moves, move{filepath.Join(stage, "figures", f.Name()), filepath.Join(figDir, f.Name())})
+	}
+	for _, n := range []string{"methods.md", "report.html"} {
+		moves = append(moves, move{filepath.Join(stage, n), filepath.Join(dir, n)})
+	}
+	// What goes aside: every target there is, and the stale figures.
+	var aside []string
+	for _, m := range moves {
+		st, err := os.Lstat(m.to)
+		if errors.Is(err, fs.ErrNotExist) {
+			continue
+		} else if err != nil {
+			return fmt.Errorf("cannot replace %s (%w)", m.to, outdir.Cause(err))
 		}
+		if !st.Mode().IsRegular() && st.Mode()&fs.ModeSymlink == 0 {
+			return fmt.Errorf("cannot replace %s (it is not a file)", m.to)
+		}
+		aside = append(aside, m.to)
 	}
 	old, err := os.ReadDir(figDir)
 	if err != nil {
@@ -239,15 +259,59 @@ func placeReport(stage, dir string, moved *int) error {
 	}
 	for _, f := range old {
 		if n := f.Name(); f.Type().IsRegular() && !drawn[n] && (report.IsFigureFile(n) || outfile.IsTemp(n)) {
-			if err := os.Remove(filepath.Join(figDir, n)); err != nil {
-				return err
+			aside = append(aside, filepath.Join(figDir, n))
+		}
+	}
+	// In the staging folder, which is in dir (so each file is only
+	// renamed) and is removed after, or by the next report should this
+	// process be killed.
+	hold, err := os.MkdirTemp(stage, ".replaced-")
+	if err != nil {
+		return fmt.Errorf("cannot write in %s (%w)", dir, outdir.Cause(err))
+	}
+	held, placed := 0, 0
+	// back undoes what was done; it reports whether all was put back.
+	back := func() bool {
+		ok := true
+		for i := placed - 1; i >= 0; i-- {
+			if err := os.Rename(moves[i].to, moves[i].from); err != nil {
+				ok = false
 			}
 		}
-	}
-	for _, n := range []string{"methods.md", "report.html"} {
-		if err := place(filepath.Join(stage, n), filepath.Join(dir, n)); err != nil {
-			return err
+		for i := held - 1; i >= 0; i-- {
+			if err := os.Rename(filepath.Join(hold, strconv.Itoa(i)), aside[i]); err != nil {
+				ok = false
+			}
 		}
+		if ok {
+			os.Remove(hold)
+			if made {
+				os.Remove(figDir)
+			}
+		}
+		return ok
 	}
+	fail := func(err error) error {
+		if back() {
+			*moved = 0
+		} else {
+			*moved = placed
+		}
+		return err
+	}
+	for _, p := range aside {
+		if err := os.Rename(p, filepath.Join(hold, strconv.Itoa(held))); err != nil {
+			return fail(fmt.Errorf("cannot replace %s (%w)", p, outdir.Cause(err)))
+		}
+		held++
+	}
+	for _, m := range moves {
+		if err := os.Rename(m.from, m.to); err != nil {
+			return fail(fmt.Errorf("cannot replace %s (%w)", m.to, outdir.Cause(err)))
+		}
+		placed++
+		*moved = placed
+	}
+	os.RemoveAll(hold)
 	return nil
 }

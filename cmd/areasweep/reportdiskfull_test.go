@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"maps"
 	"os"
 	"path/filepath"
 	"strings"
@@ -119,29 +120,90 @@ func TestReportStoppedNoteFromStart(t *testing.T) {
 	}
 }
 
-// TestPlaceReportNamesWhatFailed: a move of the report's files that fails
+// TestPlaceReportAllOrNothing: a move of the report's files that failed
 // part-way (report.html made immutable with chattr +i, after the figures
 // and methods.md were moved) said only "moving the report into im failed:
-// operation not permitted", neither the file nor that the files before it
-// were already replaced. placeReport now names the file it failed on and
-// counts the files it moved. A folder in report.html's place stands in
-// for the immutable file.
-func TestPlaceReportNamesWhatFailed(t *testing.T) {
-	stage, dir := t.TempDir(), t.TempDir()
-	os.MkdirAll(filepath.Join(stage, "figures"), 0o755)
-	os.WriteFile(filepath.Join(stage, "figures", "roc_curves.svg"), []byte("new"), 0o644)
-	os.WriteFile(filepath.Join(stage, "methods.md"), []byte("new"), 0o644)
-	os.WriteFile(filepath.Join(stage, "report.html"), []byte("new"), 0o644)
-	os.MkdirAll(filepath.Join(dir, "report.html", "x"), 0o755)
-	moved := 0
-	err := placeReport(stage, dir, &moved)
-	if err == nil {
-		t.Fatal("placeReport succeeded")
+// operation not permitted"; it then named the file and counted the files
+// already replaced; now nothing is replaced unless everything is.
+// Moving a report into its folder replaces
+// every file or none. A target that is a folder is refused before
+// anything moves (it said "cannot replace DIR/report.html" after the
+// figure and methods.md were replaced); a move that fails half-way (here
+// methods.md missing from the stage, after the figure was moved) puts
+// the replaced figure and the stale page it removed back; a success
+// replaces the files and removes the stale page, and leaves the user's
+// own file in figures/.
+func TestPlaceReportAllOrNothing(t *testing.T) {
+	setup := func(t *testing.T) (stage, dir string) {
+		stage, dir = t.TempDir(), t.TempDir()
+		os.MkdirAll(filepath.Join(stage, "figures"), 0o755)
+		os.MkdirAll(filepath.Join(dir, "figures"), 0o755)
+		for p, data := range map[string]string{
+			filepath.Join(stage, "figures", "roc_curves.svg"): "new",
+			filepath.Join(stage, "methods.md"):                "new",
+			filepath.Join(stage, "report.html"):               "new",
+			filepath.Join(dir, "figures", "roc_curves.svg"):   "old",
+			filepath.Join(dir, "figures", "ring_steps_2.svg"): "old",
+			filepath.Join(dir, "figures", "mine.txt"):         "user",
+			filepath.Join(dir, "methods.md"):                  "old",
+		} {
+			if err := os.WriteFile(p, []byte(data), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		return stage, dir
 	}
-	if want := "cannot replace " + filepath.Join(dir, "report.html") + " ("; !strings.HasPrefix(err.Error(), want) {
-		t.Errorf("%q does not start with %q", err, want)
+	read := func(dir string) map[string]string {
+		got := map[string]string{}
+		for _, n := range []string{"figures/roc_curves.svg", "figures/ring_steps_2.svg", "figures/mine.txt", "methods.md", "report.html"} {
+			if b, err := os.ReadFile(filepath.Join(dir, n)); err == nil {
+				got[n] = string(b)
+			}
+		}
+		return got
 	}
-	if moved != 2 {
-		t.Errorf("moved %d files, want 2 (the figure and methods.md)", moved)
-	}
+	before := map[string]string{"figures/roc_curves.svg": "old", "figures/ring_steps_2.svg": "old", "figures/mine.txt": "user", "methods.md": "old"}
+	t.Run("folder in the way", func(t *testing.T) {
+		stage, dir := setup(t)
+		os.MkdirAll(filepath.Join(dir, "report.html", "x"), 0o755)
+		moved := -1
+		err := placeReport(stage, dir, &moved)
+		if err == nil || !strings.HasPrefix(err.Error(), "cannot replace "+filepath.Join(dir, "report.html")+" (") {
+			t.Fatalf("error %v, want it to name report.html", err)
+		}
+		if moved != -1 && moved != 0 {
+			t.Errorf("moved %d files, want none", moved)
+		}
+		if got := read(dir); !maps.Equal(got, before) {
+			t.Errorf("files %v, want them as they were %v", got, before)
+		}
+	})
+	t.Run("failure half-way", func(t *testing.T) {
+		stage, dir := setup(t)
+		os.Remove(filepath.Join(stage, "methods.md"))
+		moved := 0
+		if err := placeReport(stage, dir, &moved); err == nil || !strings.Contains(err.Error(), "methods.md") {
+			t.Fatalf("error %v, want it to name methods.md", err)
+		}
+		if moved != 0 {
+			t.Errorf("moved %d files, want 0 after putting everything back", moved)
+		}
+		if got := read(dir); !maps.Equal(got, before) {
+			t.Errorf("files %v, want them as they were %v", got, before)
+		}
+	})
+	t.Run("success", func(t *testing.T) {
+		stage, dir := setup(t)
+		moved := 0
+		if err := placeReport(stage, dir, &moved); err != nil {
+			t.Fatal(err)
+		}
+		want := map[string]string{"figures/roc_curves.svg": "new", "figures/mine.txt": "user", "methods.md": "new", "report.html": "new"}
+		if got := read(dir); !maps.Equal(got, want) || moved != 3 {
+			t.Errorf("files %v after moving %d, want %v after 3", got, moved, want)
+		}
+		if entries, _ := os.ReadDir(stage); len(entries) != 1 {
+			t.Errorf("stage holds %d entries, want only figures/ (the set-aside folder removed)", len(entries))
+		}
+	})
 }
