@@ -116,6 +116,19 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 					}
 					walkTile(ix, fl, pts, steps, near, t0, t1, c0, c1, hi, rho)
 				}
+				if !g.Geographic && r1-r0 > 2 {
+					// Every tile of the band is probed at its centre
+					// and corners (wholeTile): all in one call.
+					ks, cs := pts.probeKs[:0], pts.probeCs[:0]
+					for c0 := 0; c0+2 < g.Width; c0 += tileSide {
+						c1 := min(c0+tileSide, g.Width)
+						kc, k1 := (r0+r1)/2-r0, r1-1-r0
+						ks = append(ks, kc, 0, 0, k1, k1)
+						cs = append(cs, (c0+c1)/2, c0, c1-1, c0, c1-1)
+					}
+					pts.makeCells(ks, cs)
+					pts.probeKs, pts.probeCs = ks, cs
+				}
 				for c0 := 0; c0 < g.Width; c0 += tileSide {
 					classify(r0, r1, c0, min(c0+tileSide, g.Width), nil)
 				}
@@ -369,6 +382,11 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 	// An empty list (steps.none: the enclosing tile's was too long) is
 	// tried again for this smaller tile, with the longer limit.
 	listed := near != nil && near.Len() > 0
+	if !pts.perRow {
+		// Every cell of the tile's rows and their left neighbours, in
+		// one call (the rows' make below finds them made).
+		pts.makeRect(t0-band, t1-band, max(c0-1, 0), c1)
+	}
 	for r := t0; r < t1; r++ {
 		k := r - band
 		if !pts.perRow {
@@ -654,9 +672,13 @@ type bandPoints struct {
 	stepOK       bool
 	stepK, stepC int
 	stepP        [3]float64
-	// makeCells' scratch: the coordinates it transforms and their cells.
-	gx, gy []float64
-	gk, gc []int
+	// makeCells' scratch: the coordinates it transforms and their cells;
+	// the band's probe cells (distanceField) and a walked tile's
+	// (makeRect).
+	gx, gy           []float64
+	gk, gc           []int
+	probeKs, probeCs []int
+	rectKs, rectCs   []int
 }
 
 // stepUpper returns an upper bound on the geodesic distance between the
@@ -769,6 +791,22 @@ func (p *bandPoints) makeCells(ks, cs []int) {
 		}
 	}
 	p.gx, p.gy, p.gk, p.gc = xs, ys, gk, gc
+}
+
+// makeRect makes, in one call, the coordinates of the cells of band rows
+// [k0, k1), columns [c0, c1) that have none yet (projected grids), as
+// makeCells does.
+func (p *bandPoints) makeRect(k0, k1, c0, c1 int) {
+	ks, cs := p.rectKs[:0], p.rectCs[:0]
+	for k := k0; k < k1; k++ {
+		for c := c0; c < c1; c++ {
+			if !p.have[k][c] {
+				ks, cs = append(ks, k), append(cs, c)
+			}
+		}
+	}
+	p.makeCells(ks, cs)
+	p.rectKs, p.rectCs = ks, cs
 }
 
 // ll returns the latitude and longitude of cell (band row k, column c),
