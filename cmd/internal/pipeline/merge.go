@@ -156,6 +156,12 @@ func shardPaths(args []string) ([]string, error) {
 			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", a))
 		}
 		if !st.IsDir() {
+			if !st.Mode().IsRegular() {
+				// A merge reads each partial file twice (readShards): a
+				// pipe would read empty the second time, a named pipe
+				// without a writer would wait for ever.
+				return nil, fault.BadInput(fmt.Errorf("%s is a pipe, device or socket (a shell's <(...), a named pipe), not a partial file: a merge reads each partial file more than once; give the path of the shard's .aspf file", a))
+			}
 			files = append(files, a)
 			continue
 		}

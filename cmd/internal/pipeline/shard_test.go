@@ -3,9 +3,14 @@ package pipeline
 import (
 	"encoding/json"
 	"fmt"
+	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
+	"syscall"
 	"testing"
+
+	"areasweep/cmd/internal/fault"
 )
 
 // notRecorded are the Options fields a shard does not record, each with
@@ -139,5 +144,48 @@ func TestGivenList(t *testing.T) {
 		if got := givenList(files(tc.n)); got != tc.want {
 			t.Errorf("%d files: %q, want %q", tc.n, got, tc.want)
 		}
+	}
+}
+
+// TestShardPathsNotAFile: a partial file given as a pipe (a shell's
+// <(cat shard-1-of-3.aspf), a named pipe) or a device is refused, naming
+// it: merge read a <(...) empty the second time and blamed the shard
+// ("is empty (0 bytes): its shard did not finish writing it"), /dev/null
+// likewise, and waited for ever on a named pipe without a writer.
+func TestShardPathsNotAFile(t *testing.T) {
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "shard-1-of-3.aspf")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Skip("no named pipe here:", err)
+	}
+	r, w, err := os.Pipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	defer w.Close()
+	procFD := fmt.Sprintf("/proc/self/fd/%d", r.Fd())
+	for _, p := range []string{fifo, "/dev/null", procFD} {
+		if _, err := os.Stat(p); err != nil {
+			t.Logf("%s: %v (skipped)", p, err)
+			continue
+		}
+		_, err := shardPaths([]string{p})
+		if err == nil || !fault.IsBadInput(err) {
+			t.Fatalf("%s: %v, want a refusal (bad input)", p, err)
+		}
+		for _, want := range []string{p + " is a pipe, device or socket", "give the path of the shard's .aspf file"} {
+			if !strings.Contains(err.Error(), want) {
+				t.Errorf("%s: %q lacks %q", p, err, want)
+			}
+		}
+	}
+	// A regular file is taken as given.
+	f := filepath.Join(dir, "shard-2-of-3.aspf")
+	if err := os.WriteFile(f, []byte("x"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if got, err := shardPaths([]string{f}); err != nil || len(got) != 1 || got[0] != f {
+		t.Errorf("regular file: %v, %v", got, err)
 	}
 }
