@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -153,31 +154,40 @@ func shardPaths(args []string) ([]string, error) {
 	for _, a := range args {
 		st, err := os.Stat(a)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", a))
+			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", shownPath(a)))
 		}
 		if !st.IsDir() {
 			if !st.Mode().IsRegular() {
 				// A merge reads each partial file twice (readShards): a
 				// pipe would read empty the second time, a named pipe
 				// without a writer would wait for ever.
-				return nil, fault.BadInput(fmt.Errorf("%s is a pipe, device or socket (a shell's <(...), a named pipe), not a partial file: a merge reads each partial file more than once; give the path of the shard's .aspf file", a))
+				return nil, fault.BadInput(fmt.Errorf("%s is a pipe, device or socket (a shell's <(...), a named pipe), not a partial file: a merge reads each partial file more than once; give the path of the shard's .aspf file", shownPath(a)))
 			}
 			files = append(files, a)
 			continue
 		}
 		found, err := filepath.Glob(filepath.Join(globEscape(a), "*.aspf"))
 		if err != nil || len(found) == 0 {
-			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", a))
+			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", shownPath(a)))
 		}
 		sort.Strings(found)
 		for _, f := range found {
 			if st, err := os.Stat(f); err == nil && st.IsDir() {
-				return nil, fault.BadInput(fmt.Errorf("%s in folder %s is a folder, not a partial file; move it out of %s, or give the shards' .aspf files instead of the folder", f, a, a))
+				return nil, fault.BadInput(fmt.Errorf("%s in folder %s is a folder, not a partial file; move it out of %s, or give the shards' .aspf files instead of the folder", shownPath(f), shownPath(a), shownPath(a)))
 			}
 		}
 		files = append(files, found...)
 	}
 	return files, nil
+}
+
+// shownPath is path p as messages name it: quoted when it holds a line
+// break, so that the message stays on one line.
+func shownPath(p string) string {
+	if strings.ContainsAny(p, "\n\r") {
+		return strconv.Quote(p)
+	}
+	return p
 }
 
 // globEscape escapes the glob metacharacters of a literal path.
@@ -202,7 +212,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	read := func(f string) ([]byte, error) {
 		data, err := os.ReadFile(f)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", f, err))
+			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", shownPath(f), err))
 		}
 		return data, nil
 	}
@@ -211,7 +221,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if err != nil {
 			return nil, metrics.ShardHeader{}, err
 		}
-		pf, err := metrics.DecodePartial(data, f)
+		pf, err := metrics.DecodePartial(data, shownPath(f))
 		if err != nil {
 			return nil, metrics.ShardHeader{}, fault.BadInput(err)
 		}
@@ -219,7 +229,11 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	}
 	if err := metrics.CheckShardSet(headers); err != nil {
 		if errors.Is(err, metrics.ErrShardMissing) {
-			err = fmt.Errorf("%w (given: %s)", err, givenList(files))
+			shown := make([]string, len(files))
+			for i, f := range files {
+				shown[i] = shownPath(f)
+			}
+			err = fmt.Errorf("%w (given: %s)", err, givenList(shown))
 		}
 		nameSettings(err, files, headers)
 		mixedSplits(err, files, headers)
@@ -241,7 +255,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if err != nil {
 			return nil, metrics.ShardHeader{}, err
 		}
-		sh, err := shardfile.Decode(data, files[i])
+		sh, err := shardfile.Decode(data, shownPath(files[i]))
 		if err != nil {
 			return nil, metrics.ShardHeader{}, fault.BadInput(err)
 		}
@@ -318,7 +332,7 @@ func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
 	for _, f := range files {
 		d := filepath.Dir(f)
 		if len(counts[d]) > 1 {
-			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", d, headers[0].Shards)
+			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", shownPath(d), headers[0].Shards)
 			return
 		}
 	}

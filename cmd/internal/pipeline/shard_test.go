@@ -189,3 +189,54 @@ func TestShardPathsNotAFile(t *testing.T) {
 		t.Errorf("regular file: %v, %v", got, err)
 	}
 }
+
+// TestMergeLineBreakPaths: a partial file or folder whose path holds a
+// line break is named quoted, so that merge's refusal stays on one line;
+// it was printed raw across two ("areasweep: /tmp/odd/a" and
+// "b/shard-3-of-3.aspf: not a valid partial file: ..."), as found with a
+// cut-short file, a missing shard and a shard given twice.
+func TestMergeLineBreakPaths(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "a\nb")
+	if err := os.Mkdir(dir, 0o777); err != nil {
+		t.Fatal(err)
+	}
+	cut := filepath.Join(dir, "shard-1-of-3.aspf")
+	if err := os.WriteFile(cut, []byte("ASPF cut short"), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	quoted := strconvQuote(dir)
+	for _, tc := range []struct {
+		name string
+		run  func() error
+	}{
+		{"absent file", func() error { _, err := shardPaths([]string{filepath.Join(dir, "none.aspf")}); return err }},
+		{"empty folder", func() error { _, err := shardPaths([]string{mkdirIn(t, dir, "empty\nfolder")}); return err }},
+		{"cut short", func() error { _, _, err := readShards([]string{cut}, "test"); return err }},
+	} {
+		err := tc.run()
+		if err == nil {
+			t.Fatalf("%s: no error", tc.name)
+		}
+		msg := err.Error()
+		if strings.ContainsAny(msg, "\n\r") {
+			t.Errorf("%s: message spans lines: %q", tc.name, msg)
+		}
+		if !strings.Contains(msg, strings.TrimSuffix(quoted, `"`)) {
+			t.Errorf("%s: %q does not name %s quoted", tc.name, msg, quoted)
+		}
+	}
+	// A path without a line break is named as given.
+	if got := shownPath("/tmp/s p*[x]/shard-1-of-2.aspf"); got != "/tmp/s p*[x]/shard-1-of-2.aspf" {
+		t.Errorf("shownPath changed a plain path: %q", got)
+	}
+}
+
+func strconvQuote(s string) string { return fmt.Sprintf("%q", s) }
+
+func mkdirIn(t *testing.T, parent, name string) string {
+	p := filepath.Join(parent, name)
+	if err := os.Mkdir(p, 0o777); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
