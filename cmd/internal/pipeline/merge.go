@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -210,7 +211,17 @@ func globEscape(s string) string {
 func readShards(files []string, version string) (*shardfile.Merged, metrics.ShardHeader, error) {
 	var headers []metrics.ShardHeader
 	read := func(f string) ([]byte, error) {
-		data, err := os.ReadFile(f)
+		// The first bytes first: a foreign file (a raster, an archive)
+		// of gigabytes is refused without being read whole, which met a
+		// job's memory limit with Go's "fatal error: out of memory".
+		head, err := readHead(f, metrics.PartialStartBytes)
+		if err != nil {
+			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", shownPath(f), err))
+		}
+		if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
+			return nil, fault.BadInput(err)
+		}
+		data, err := readPartial(f)
 		if err != nil {
 			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", shownPath(f), err))
 		}
@@ -264,6 +275,24 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// readPartial reads a whole partial file (a seam for tests).
+var readPartial = os.ReadFile
+
+// readHead reads the first n bytes of file f (fewer when it is shorter).
+func readHead(f string, n int) ([]byte, error) {
+	fh, err := os.Open(f)
+	if err != nil {
+		return nil, err
+	}
+	defer fh.Close()
+	head := make([]byte, n)
+	k, err := io.ReadFull(fh, head)
+	if err != nil && err != io.EOF && err != io.ErrUnexpectedEOF {
+		return nil, err
+	}
+	return head[:k], nil
 }
 
 // givenList names the partial files given, for the refusal of missing

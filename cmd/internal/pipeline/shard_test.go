@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/metrics"
 )
 
 // notRecorded are the Options fields a shard does not record, each with
@@ -239,4 +240,46 @@ func mkdirIn(t *testing.T, parent, name string) string {
 		t.Fatal(err)
 	}
 	return p
+}
+
+// TestReadShardsForeignNotReadWhole: a file given as a shard that is not
+// a partial file (or of another format) is refused from its first bytes,
+// with the messages of metrics.DecodePartial, without being read whole: a
+// 3 GB file given by mistake was read into memory to be refused, and under
+// a memory limit (ulimit -v 2000000, as a cluster job has) merge died with
+// Go's "fatal error: out of memory" and a stack trace.
+func TestReadShardsForeignNotReadWhole(t *testing.T) {
+	dir := t.TempDir()
+	var whole []string
+	defer func(f func(string) ([]byte, error)) { readPartial = f }(readPartial)
+	readPartial = func(f string) ([]byte, error) {
+		whole = append(whole, f)
+		return os.ReadFile(f)
+	}
+	for _, tc := range []struct {
+		name, content, want string
+	}{
+		// The wants are DecodePartial's own words for the same content.
+		{"empty.aspf", "", "is empty (0 bytes)"},
+		{"image.aspf", "II*\x00" + strings.Repeat("x", 4096), `does not start with "ASPF"`},
+		{"short.aspf", "AS", `does not start with "ASPF"`},
+		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 3"},
+	} {
+		f := filepath.Join(dir, tc.name)
+		if err := os.WriteFile(f, []byte(tc.content), 0o666); err != nil {
+			t.Fatal(err)
+		}
+		_, err := metrics.DecodePartial([]byte(tc.content), f)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Fatalf("%s: DecodePartial says %v, want %q", tc.name, err, tc.want)
+		}
+		whole = nil
+		_, _, err = readShards([]string{f}, "test")
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), f+": not a valid partial file: "+tc.want) {
+			t.Errorf("%s: %v, want a refusal naming it: %q", tc.name, err, tc.want)
+		}
+		if len(whole) > 0 {
+			t.Errorf("%s: read whole before being refused", tc.name)
+		}
+	}
 }
