@@ -104,7 +104,13 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		}
 	}
 	if len(missing) > 0 {
-		here, _ := os.Getwd()
+		here, werr := os.Getwd()
+		if werr != nil {
+			// The current folder was removed: said by the caller
+			// (outdir.CwdGone), here not named as "".
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found: "+
+				"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0]))
+		}
 		if found {
 			return nil, fault.BadInput(fmt.Errorf("%s: the input %s is missing from %s, where the shards' other inputs are: it was removed or renamed since the shards ran; "+
 				"restore it, or run the shards again", first.Source, missing[0], here))
