@@ -222,14 +222,14 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		// job's memory limit with Go's "fatal error: out of memory".
 		head, err := readHead(f, metrics.PartialStartBytes)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", shownPath(f), err))
+			return nil, cannotRead(f, err)
 		}
 		if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
 			return nil, fault.BadInput(err)
 		}
 		data, err := readPartial(f)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", shownPath(f), err))
+			return nil, cannotRead(f, err)
 		}
 		return data, nil
 	}
@@ -283,12 +283,27 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	return m, headers[order[0]], nil
 }
 
-// readPartial reads a whole partial file (a seam for tests).
-var readPartial = os.ReadFile
+// readPartial reads a whole partial file, openPartial opens one for its
+// first bytes (seams for tests).
+var (
+	readPartial = os.ReadFile
+	openPartial = os.Open
+)
+
+// cannotRead refuses partial file f that cannot be read (err), naming it
+// once with the system's reason, and what to do; it said Go's "open F:
+// permission denied" after the name.
+func cannotRead(f string, err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	return fault.BadInput(fmt.Errorf("partial file %s cannot be read (%v): check that it is still there and that you may read it (its permissions), or run its shard again", shownPath(f), err))
+}
 
 // readHead reads the first n bytes of file f (fewer when it is shorter).
 func readHead(f string, n int) ([]byte, error) {
-	fh, err := os.Open(f)
+	fh, err := openPartial(f)
 	if err != nil {
 		return nil, err
 	}

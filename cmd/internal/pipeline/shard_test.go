@@ -3,6 +3,7 @@ package pipeline
 import (
 	"encoding/json"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -280,6 +281,42 @@ func TestReadShardsForeignNotReadWhole(t *testing.T) {
 		}
 		if len(whole) > 0 {
 			t.Errorf("%s: read whole before being refused", tc.name)
+		}
+	}
+}
+
+// TestReadShardsCannotRead: a partial file that cannot be opened or read
+// (a shard file of mode 000 for a user other than its owner, one removed
+// between the merge's reads) is named once with the system's reason and
+// what to do; merge said "partial file F cannot be read: open F:
+// permission denied" (found with setpriv as nobody on a 000 file).
+func TestReadShardsCannotRead(t *testing.T) {
+	f := filepath.Join(t.TempDir(), "shard-2-of-3.aspf")
+	if err := os.WriteFile(f, []byte("ASPF\x03\x00 rest of the file"), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	defer func(o func(string) (*os.File, error), r func(string) ([]byte, error)) {
+		openPartial, readPartial = o, r
+	}(openPartial, readPartial)
+	denied := func(op string) error { return &fs.PathError{Op: op, Path: f, Err: syscall.EACCES} }
+	for _, tc := range []struct {
+		name string
+		set  func()
+	}{
+		{"open for the first bytes", func() {
+			openPartial = func(string) (*os.File, error) { return nil, denied("open") }
+			readPartial = os.ReadFile
+		}},
+		{"read whole", func() {
+			openPartial = os.Open
+			readPartial = func(string) ([]byte, error) { return nil, denied("open") }
+		}},
+	} {
+		tc.set()
+		_, _, err := readShards([]string{f}, "test")
+		want := "partial file " + f + " cannot be read (permission denied): check that it is still there and that you may read it"
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), want) || strings.Count(err.Error(), f) != 1 {
+			t.Errorf("%s: %v, want %q naming the file once", tc.name, err, want)
 		}
 	}
 }
