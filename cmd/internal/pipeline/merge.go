@@ -175,6 +175,14 @@ func shardPaths(args []string) ([]string, error) {
 		}
 		found, err := filepath.Glob(filepath.Join(globEscape(a), "*.aspf"))
 		if err != nil || len(found) == 0 {
+			// Glob finds nothing in a folder it cannot list either.
+			if _, lerr := listDir(a); lerr != nil {
+				var pe *fs.PathError
+				if errors.As(lerr, &pe) {
+					lerr = pe.Err
+				}
+				return nil, fault.BadInput(fmt.Errorf("folder %s cannot be listed (%v): check that you may read it (its permissions), or give the shards' .aspf files in it instead of the folder", shownPath(a), lerr))
+			}
 			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", shownPath(a)))
 		}
 		sort.Strings(found)
@@ -284,10 +292,11 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 }
 
 // readPartial reads a whole partial file, openPartial opens one for its
-// first bytes (seams for tests).
+// first bytes, listDir lists a folder given as a shard's (seams for tests).
 var (
 	readPartial = os.ReadFile
 	openPartial = os.Open
+	listDir     = os.ReadDir
 )
 
 // cannotRead refuses partial file f that cannot be read (err), naming it

@@ -320,3 +320,26 @@ func TestReadShardsCannotRead(t *testing.T) {
 		}
 	}
 }
+
+// TestShardPathsFolderNotListed: a shard folder that cannot be listed
+// (mode 000 or 311 for a user other than its owner) is said to be so, not
+// to hold no partial file (found with setpriv as nobody: "folder F holds
+// no partial file (*.aspf)" while its three files were there). An empty
+// folder that can be listed still says it holds none.
+func TestShardPathsFolderNotListed(t *testing.T) {
+	dir := t.TempDir()
+	defer func(f func(string) ([]os.DirEntry, error)) { listDir = f }(listDir)
+	listDir = func(d string) ([]os.DirEntry, error) {
+		return nil, &fs.PathError{Op: "open", Path: d, Err: syscall.EACCES}
+	}
+	_, err := shardPaths([]string{dir})
+	want := "folder " + dir + " cannot be listed (permission denied): check that you may read it (its permissions), or give the shards' .aspf files in it instead of the folder"
+	if err == nil || !fault.IsBadInput(err) || err.Error() != want {
+		t.Errorf("unlisted folder: %v, want %q", err, want)
+	}
+	listDir = os.ReadDir
+	_, err = shardPaths([]string{dir})
+	if err == nil || !strings.Contains(err.Error(), "holds no partial file") {
+		t.Errorf("empty folder: %v", err)
+	}
+}
