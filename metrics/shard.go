@@ -257,6 +257,33 @@ func EncodePartial(p *PartialFile) ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// PartialStartBytes is how many first bytes of a file CheckPartialStart
+// needs.
+const PartialStartBytes = 6
+
+// CheckPartialStart refuses, as DecodePartial does, a file whose first
+// bytes (head: up to PartialStartBytes of them, fewer only when the file is
+// that short) show that it is empty, not a partial file, or of another
+// format, so that a foreign file of gigabytes is refused without being
+// read whole. A head that passes may still be refused by DecodePartial.
+func CheckPartialStart(head []byte, source string) error {
+	bad := func(format string, a ...any) error {
+		return &ShardError{Source: source, Err: ErrPartialFormat, Detail: fmt.Sprintf(format, a...)}
+	}
+	if len(head) == 0 {
+		return bad("is empty (0 bytes): its shard did not finish writing it; run that shard again")
+	}
+	if len(head) < 4 || string(head[:4]) != partialMagic {
+		return bad("does not start with %q; give the partial files that `run --shard` wrote", partialMagic)
+	}
+	if len(head) >= 6 {
+		if v := binary.LittleEndian.Uint16(head[4:]); v != PartialFormatVersion {
+			return bad("format %d, this areasweep reads format %d; merge with the areasweep version that wrote the shards", v, PartialFormatVersion)
+		}
+	}
+	return nil
+}
+
 // DecodePartial reads a partial file; source (the file name) is used in
 // messages and kept in Header.Source. It refuses another format version, a
 // truncated or corrupt file (checksum), an unknown header field and an
@@ -265,17 +292,11 @@ func DecodePartial(data []byte, source string) (*PartialFile, error) {
 	bad := func(format string, a ...any) error {
 		return &ShardError{Source: source, Err: ErrPartialFormat, Detail: fmt.Sprintf(format, a...)}
 	}
-	if len(data) == 0 {
-		return nil, bad("is empty (0 bytes): its shard did not finish writing it; run that shard again")
-	}
-	if len(data) < 4 || string(data[:4]) != partialMagic {
-		return nil, bad("does not start with %q; give the partial files that `run --shard` wrote", partialMagic)
+	if err := CheckPartialStart(data, source); err != nil {
+		return nil, err
 	}
 	if len(data) < 6 {
 		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
-	}
-	if v := binary.LittleEndian.Uint16(data[4:]); v != PartialFormatVersion {
-		return nil, bad("format %d, this areasweep reads format %d; merge with the areasweep version that wrote the shards", v, PartialFormatVersion)
 	}
 	if len(data) < 6+4+4+sha256.Size {
 		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))

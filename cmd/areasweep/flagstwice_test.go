@@ -73,3 +73,37 @@ func TestLongFlagValueCut(t *testing.T) {
 		}
 	}
 }
+
+// TestShardAndMergeFlagsGivenTwice: --shard of run and --out of merge
+// given twice with two values are refused as the file flags are (only the
+// last was used: "--shard 1/3 --shard 2/3" wrote shard 2 alone, "merge
+// --out a --out b" wrote into b). The same value twice still runs.
+// Nothing is written.
+func TestShardAndMergeFlagsGivenTwice(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := t.TempDir()
+	shardOut := filepath.Join(dir, "shard")
+	mergeA, mergeB := filepath.Join(dir, "a"), filepath.Join(dir, "b")
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{append(s.args(shardOut), "--shard", "1/3", "--shard", "2/3"), `--shard is given twice ("1/3", then "2/3"); only one is used: give it once`},
+		{[]string{"merge", "--out", mergeA, "--out", mergeB, dir}, `--out is given twice ("` + mergeA + `", then "` + mergeB + `"); only one is used: give it once`},
+	} {
+		var so, se strings.Builder
+		code := Main(c.args, nil, &so, &se)
+		if msg := se.String(); code != 2 || !strings.Contains(msg, c.want) || strings.Contains(msg, "invalid argument") {
+			t.Errorf("%v: exit %d: %s", c.args, code, msg)
+		}
+	}
+	for _, p := range []string{shardOut, mergeA, mergeB} {
+		if _, err := os.Stat(p); err == nil {
+			t.Errorf("%s was created", p)
+		}
+	}
+	args := append(s.args(shardOut), "--shard", "1/3", "--shard", "1/3")
+	if _, se, code := runBin(t, args...); code != 0 {
+		t.Fatalf("the same --shard twice: exit %d: %s", code, se)
+	}
+}

@@ -24,7 +24,7 @@ type MergeOptions struct {
 }
 
 func newMergeCmd(streams *IO, runF func(*MergeOptions) error) *cobra.Command {
-	opts := &MergeOptions{IO: streams}
+	opts := &MergeOptions{IO: streams, Out: "areasweep-out"}
 	cmd := &cobra.Command{
 		Use:   "merge --out DIR SHARD...",
 		Short: "Combine the partial files of 'run --shard I/N' into the outputs of the whole run",
@@ -60,7 +60,7 @@ results.json and scores.csv are byte for byte those of a single run.`,
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&opts.Out, "out", "areasweep-out", "output directory `DIR` (an existing non-empty one needs --force)")
+	f.Var(&onceString{p: &opts.Out, name: "out"}, "out", "output directory `DIR` (an existing non-empty one needs --force)")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
 	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", settings.MaxWorkers))

@@ -34,6 +34,10 @@ func (f *shardFlag) Set(s string) error {
 	if !ok || err1 != nil || err2 != nil || n < 1 || n > maxShards || i < 1 || i > n {
 		return fmt.Errorf("%q is not I/N with 1 <= I <= N <= %d (e.g. --shard 2/8)", s, maxShards)
 	}
+	if f.N != 0 && (f.I != i || f.N != n) {
+		// Only the last would be run, as with a file flag (onceString).
+		return fmt.Errorf("--shard is given twice (%q, then %q); only one is used: give it once", f.String(), s)
+	}
 	f.I, f.N = i, n
 	return nil
 }

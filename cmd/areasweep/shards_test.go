@@ -366,6 +366,19 @@ func TestMergeRelativePaths(t *testing.T) {
 	if se, code := run(s.dir, "merge", "--quiet", "--out", out, "shards/1", "shards/2"); code != 0 {
 		t.Fatalf("merge from the shards' folder: exit %d: %s", code, se)
 	}
+	// From a current folder that was removed: no empty folder named
+	// ("is not found from : run the merge ..."), the folder said gone.
+	gone := filepath.Join(elsewhere, "gone")
+	cmd := exec.Command("sh", "-c", `mkdir "$1" && cd "$1" && rmdir "$1" && shift && exec "$@"`, "sh", gone, areasweepBin,
+		"merge", "--quiet", "--out", out+"-gone", filepath.Join(s.dir, "shards", "1"), filepath.Join(s.dir, "shards", "2"))
+	var gse bytes.Buffer
+	cmd.Stderr = &gse
+	err := cmd.Run()
+	msg := strings.TrimSpace(gse.String())
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 2 || strings.Contains(msg, "\n") || strings.Contains(msg, "from :") ||
+		!strings.Contains(msg, "occ.csv, recorded relative to the folder the shards ran in, is not found") || !strings.Contains(msg, "the current folder no longer exists") {
+		t.Fatalf("merge from a removed folder: %v: %s", err, msg)
+	}
 	// From the right folder, with one input renamed since the shards ran:
 	// the message names that input as missing, not the folder as wrong.
 	if err := os.Rename(filepath.Join(s.dir, "model.tif"), filepath.Join(s.dir, "model-old.tif")); err != nil {

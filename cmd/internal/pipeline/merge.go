@@ -5,11 +5,13 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -102,7 +104,13 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		}
 	}
 	if len(missing) > 0 {
-		here, _ := os.Getwd()
+		here, werr := os.Getwd()
+		if werr != nil {
+			// The current folder was removed: said by the caller
+			// (outdir.CwdGone), here not named as "".
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found: "+
+				"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0]))
+		}
 		if found {
 			return nil, fault.BadInput(fmt.Errorf("%s: the input %s is missing from %s, where the shards' other inputs are: it was removed or renamed since the shards ran; "+
 				"restore it, or run the shards again", first.Source, missing[0], here))
@@ -153,25 +161,48 @@ func shardPaths(args []string) ([]string, error) {
 	for _, a := range args {
 		st, err := os.Stat(a)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", a))
+			return nil, fault.BadInput(fmt.Errorf("%s does not exist or cannot be read; check the path", shownPath(a)))
 		}
 		if !st.IsDir() {
+			if !st.Mode().IsRegular() {
+				// A merge reads each partial file twice (readShards): a
+				// pipe would read empty the second time, a named pipe
+				// without a writer would wait for ever.
+				return nil, fault.BadInput(fmt.Errorf("%s is a pipe, device or socket (a shell's <(...), a named pipe), not a partial file: a merge reads each partial file more than once; give the path of the shard's .aspf file", shownPath(a)))
+			}
 			files = append(files, a)
 			continue
 		}
 		found, err := filepath.Glob(filepath.Join(globEscape(a), "*.aspf"))
 		if err != nil || len(found) == 0 {
-			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", a))
+			// Glob finds nothing in a folder it cannot list either.
+			if _, lerr := listDir(a); lerr != nil {
+				var pe *fs.PathError
+				if errors.As(lerr, &pe) {
+					lerr = pe.Err
+				}
+				return nil, fault.BadInput(fmt.Errorf("folder %s cannot be listed (%v): check that you may read it (its permissions), or give the shards' .aspf files in it instead of the folder", shownPath(a), lerr))
+			}
+			return nil, fault.BadInput(fmt.Errorf("folder %s holds no partial file (*.aspf); give the shards' output folders or files", shownPath(a)))
 		}
 		sort.Strings(found)
 		for _, f := range found {
 			if st, err := os.Stat(f); err == nil && st.IsDir() {
-				return nil, fault.BadInput(fmt.Errorf("%s in folder %s is a folder, not a partial file; move it out of %s, or give the shards' .aspf files instead of the folder", f, a, a))
+				return nil, fault.BadInput(fmt.Errorf("%s in folder %s is a folder, not a partial file; move it out of %s, or give the shards' .aspf files instead of the folder", shownPath(f), shownPath(a), shownPath(a)))
 			}
 		}
 		files = append(files, found...)
 	}
 	return files, nil
+}
+
+// shownPath is path p as messages name it: quoted when it holds a line
+// break, so that the message stays on one line.
+func shownPath(p string) string {
+	if strings.ContainsAny(p, "\n\r") {
+		return strconv.Quote(p)
+	}
+	return p
 }
 
 // globEscape escapes the glob metacharacters of a literal path.
@@ -194,9 +225,19 @@ func globEscape(s string) string {
 func readShards(files []string, version string) (*shardfile.Merged, metrics.ShardHeader, error) {
 	var headers []metrics.ShardHeader
 	read := func(f string) ([]byte, error) {
-		data, err := os.ReadFile(f)
+		// The first bytes first: a foreign file (a raster, an archive)
+		// of gigabytes is refused without being read whole, which met a
+		// job's memory limit with Go's "fatal error: out of memory".
+		head, err := readHead(f, metrics.PartialStartBytes)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("partial file %s cannot be read: %v", f, err))
+			return nil, cannotRead(f, err)
+		}
+		if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
+			return nil, fault.BadInput(err)
+		}
+		data, err := readPartial(f)
+		if err != nil {
+			return nil, cannotRead(f, err)
 		}
 		return data, nil
 	}
@@ -205,7 +246,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if err != nil {
 			return nil, metrics.ShardHeader{}, err
 		}
-		pf, err := metrics.DecodePartial(data, f)
+		pf, err := metrics.DecodePartial(data, shownPath(f))
 		if err != nil {
 			return nil, metrics.ShardHeader{}, fault.BadInput(err)
 		}
@@ -213,7 +254,11 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 	}
 	if err := metrics.CheckShardSet(headers); err != nil {
 		if errors.Is(err, metrics.ErrShardMissing) {
-			err = fmt.Errorf("%w (given: %s)", err, givenList(files))
+			shown := make([]string, len(files))
+			for i, f := range files {
+				shown[i] = shownPath(f)
+			}
+			err = fmt.Errorf("%w (given: %s)", err, givenList(shown))
 		}
 		nameSettings(err, files, headers)
 		mixedSplits(err, files, headers)
@@ -235,7 +280,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if err != nil {
 			return nil, metrics.ShardHeader{}, err
 		}
-		sh, err := shardfile.Decode(data, files[i])
+		sh, err := shardfile.Decode(data, shownPath(files[i]))
 		if err != nil {
 			return nil, metrics.ShardHeader{}, fault.BadInput(err)
 		}
@@ -244,6 +289,40 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		}
 	}
 	return m, headers[order[0]], nil
+}
+
+// readPartial reads a whole partial file, openPartial opens one for its
+// first bytes, listDir lists a folder given as a shard's (seams for tests).
+var (
+	readPartial = os.ReadFile
+	openPartial = os.Open
+	listDir     = os.ReadDir
+)
+
+// cannotRead refuses partial file f that cannot be read (err), naming it
+// once with the system's reason, and what to do; it said Go's "open F:
+// permission denied" after the name.
+func cannotRead(f string, err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		err = pe.Err
+	}
+	return fault.BadInput(fmt.Errorf("partial file %s cannot be read (%v): check that it is still there and that you may read it (its permissions), or run its shard again", shownPath(f), err))
+}
+
+// readHead reads the first n bytes of file f (fewer when it is shorter).
+func readHead(f string, n int) ([]byte, error) {
+	fh, err := openPartial(f)
+	if err != nil {
+		return nil, err
+	}
+	defer fh.Close()
+	head := make([]byte, n)
+	k, err := io.ReadFull(fh, head)
+	if err != nil && err != io.EOF && err != io.ErrUnexpectedEOF {
+		return nil, err
+	}
+	return head[:k], nil
 }
 
 // givenList names the partial files given, for the refusal of missing
@@ -312,7 +391,7 @@ func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
 	for _, f := range files {
 		d := filepath.Dir(f)
 		if len(counts[d]) > 1 {
-			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", d, headers[0].Shards)
+			se.Detail += fmt.Sprintf(" (%s holds the partial files of several splits: give the files of one, shard-*-of-%d.aspf, instead of the folder)", shownPath(d), headers[0].Shards)
 			return
 		}
 	}

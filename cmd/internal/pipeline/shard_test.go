@@ -3,9 +3,16 @@ package pipeline
 import (
 	"encoding/json"
 	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
+	"syscall"
 	"testing"
+
+	"areasweep/cmd/internal/fault"
+	"areasweep/metrics"
 )
 
 // notRecorded are the Options fields a shard does not record, each with
@@ -139,5 +146,200 @@ func TestGivenList(t *testing.T) {
 		if got := givenList(files(tc.n)); got != tc.want {
 			t.Errorf("%d files: %q, want %q", tc.n, got, tc.want)
 		}
+	}
+}
+
+// TestShardPathsNotAFile: a partial file given as a pipe (a shell's
+// <(cat shard-1-of-3.aspf), a named pipe) or a device is refused, naming
+// it: merge read a <(...) empty the second time and blamed the shard
+// ("is empty (0 bytes): its shard did not finish writing it"), /dev/null
+// likewise, and waited for ever on a named pipe without a writer.
+func TestShardPathsNotAFile(t *testing.T) {
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "shard-1-of-3.aspf")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Skip("no named pipe here:", err)
+	}
+	r, w, err := os.Pipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	defer w.Close()
+	procFD := fmt.Sprintf("/proc/self/fd/%d", r.Fd())
+	for _, p := range []string{fifo, "/dev/null", procFD} {
+		if _, err := os.Stat(p); err != nil {
+			t.Logf("%s: %v (skipped)", p, err)
+			continue
+		}
+		_, err := shardPaths([]string{p})
+		if err == nil || !fault.IsBadInput(err) {
+			t.Fatalf("%s: %v, want a refusal (bad input)", p, err)
+		}
+		for _, want := range []string{p + " is a pipe, device or socket", "give the path of the shard's .aspf file"} {
+			if !strings.Contains(err.Error(), want) {
+				t.Errorf("%s: %q lacks %q", p, err, want)
+			}
+		}
+	}
+	// A regular file is taken as given.
+	f := filepath.Join(dir, "shard-2-of-3.aspf")
+	if err := os.WriteFile(f, []byte("x"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if got, err := shardPaths([]string{f}); err != nil || len(got) != 1 || got[0] != f {
+		t.Errorf("regular file: %v, %v", got, err)
+	}
+}
+
+// TestMergeLineBreakPaths: a partial file or folder whose path holds a
+// line break is named quoted, so that merge's refusal stays on one line;
+// it was printed raw across two ("areasweep: /tmp/odd/a" and
+// "b/shard-3-of-3.aspf: not a valid partial file: ..."), as found with a
+// cut-short file, a missing shard and a shard given twice.
+func TestMergeLineBreakPaths(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "a\nb")
+	if err := os.Mkdir(dir, 0o777); err != nil {
+		t.Fatal(err)
+	}
+	cut := filepath.Join(dir, "shard-1-of-3.aspf")
+	if err := os.WriteFile(cut, []byte("ASPF cut short"), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	quoted := strconvQuote(dir)
+	for _, tc := range []struct {
+		name string
+		run  func() error
+	}{
+		{"absent file", func() error { _, err := shardPaths([]string{filepath.Join(dir, "none.aspf")}); return err }},
+		{"empty folder", func() error { _, err := shardPaths([]string{mkdirIn(t, dir, "empty\nfolder")}); return err }},
+		{"cut short", func() error { _, _, err := readShards([]string{cut}, "test"); return err }},
+	} {
+		err := tc.run()
+		if err == nil {
+			t.Fatalf("%s: no error", tc.name)
+		}
+		msg := err.Error()
+		if strings.ContainsAny(msg, "\n\r") {
+			t.Errorf("%s: message spans lines: %q", tc.name, msg)
+		}
+		if !strings.Contains(msg, strings.TrimSuffix(quoted, `"`)) {
+			t.Errorf("%s: %q does not name %s quoted", tc.name, msg, quoted)
+		}
+	}
+	// A path without a line break is named as given.
+	if got := shownPath("/tmp/s p*[x]/shard-1-of-2.aspf"); got != "/tmp/s p*[x]/shard-1-of-2.aspf" {
+		t.Errorf("shownPath changed a plain path: %q", got)
+	}
+}
+
+func strconvQuote(s string) string { return fmt.Sprintf("%q", s) }
+
+func mkdirIn(t *testing.T, parent, name string) string {
+	p := filepath.Join(parent, name)
+	if err := os.Mkdir(p, 0o777); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestReadShardsForeignNotReadWhole: a file given as a shard that is not
+// a partial file (or of another format) is refused from its first bytes,
+// with the messages of metrics.DecodePartial, without being read whole: a
+// 3 GB file given by mistake was read into memory to be refused, and under
+// a memory limit (ulimit -v 2000000, as a cluster job has) merge died with
+// Go's "fatal error: out of memory" and a stack trace.
+func TestReadShardsForeignNotReadWhole(t *testing.T) {
+	dir := t.TempDir()
+	var whole []string
+	defer func(f func(string) ([]byte, error)) { readPartial = f }(readPartial)
+	readPartial = func(f string) ([]byte, error) {
+		whole = append(whole, f)
+		return os.ReadFile(f)
+	}
+	for _, tc := range []struct {
+		name, content, want string
+	}{
+		// The wants are DecodePartial's own words for the same content.
+		{"empty.aspf", "", "is empty (0 bytes)"},
+		{"image.aspf", "II*\x00" + strings.Repeat("x", 4096), `does not start with "ASPF"`},
+		{"short.aspf", "AS", `does not start with "ASPF"`},
+		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 3"},
+	} {
+		f := filepath.Join(dir, tc.name)
+		if err := os.WriteFile(f, []byte(tc.content), 0o666); err != nil {
+			t.Fatal(err)
+		}
+		_, err := metrics.DecodePartial([]byte(tc.content), f)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Fatalf("%s: DecodePartial says %v, want %q", tc.name, err, tc.want)
+		}
+		whole = nil
+		_, _, err = readShards([]string{f}, "test")
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), f+": not a valid partial file: "+tc.want) {
+			t.Errorf("%s: %v, want a refusal naming it: %q", tc.name, err, tc.want)
+		}
+		if len(whole) > 0 {
+			t.Errorf("%s: read whole before being refused", tc.name)
+		}
+	}
+}
+
+// TestReadShardsCannotRead: a partial file that cannot be opened or read
+// (a shard file of mode 000 for a user other than its owner, one removed
+// between the merge's reads) is named once with the system's reason and
+// what to do; merge said "partial file F cannot be read: open F:
+// permission denied" (found with setpriv as nobody on a 000 file).
+func TestReadShardsCannotRead(t *testing.T) {
+	f := filepath.Join(t.TempDir(), "shard-2-of-3.aspf")
+	if err := os.WriteFile(f, []byte("ASPF\x03\x00 rest of the file"), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	defer func(o func(string) (*os.File, error), r func(string) ([]byte, error)) {
+		openPartial, readPartial = o, r
+	}(openPartial, readPartial)
+	denied := func(op string) error { return &fs.PathError{Op: op, Path: f, Err: syscall.EACCES} }
+	for _, tc := range []struct {
+		name string
+		set  func()
+	}{
+		{"open for the first bytes", func() {
+			openPartial = func(string) (*os.File, error) { return nil, denied("open") }
+			readPartial = os.ReadFile
+		}},
+		{"read whole", func() {
+			openPartial = os.Open
+			readPartial = func(string) ([]byte, error) { return nil, denied("open") }
+		}},
+	} {
+		tc.set()
+		_, _, err := readShards([]string{f}, "test")
+		want := "partial file " + f + " cannot be read (permission denied): check that it is still there and that you may read it"
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), want) || strings.Count(err.Error(), f) != 1 {
+			t.Errorf("%s: %v, want %q naming the file once", tc.name, err, want)
+		}
+	}
+}
+
+// TestShardPathsFolderNotListed: a shard folder that cannot be listed
+// (mode 000 or 311 for a user other than its owner) is said to be so, not
+// to hold no partial file (found with setpriv as nobody: "folder F holds
+// no partial file (*.aspf)" while its three files were there). An empty
+// folder that can be listed still says it holds none.
+func TestShardPathsFolderNotListed(t *testing.T) {
+	dir := t.TempDir()
+	defer func(f func(string) ([]os.DirEntry, error)) { listDir = f }(listDir)
+	listDir = func(d string) ([]os.DirEntry, error) {
+		return nil, &fs.PathError{Op: "open", Path: d, Err: syscall.EACCES}
+	}
+	_, err := shardPaths([]string{dir})
+	want := "folder " + dir + " cannot be listed (permission denied): check that you may read it (its permissions), or give the shards' .aspf files in it instead of the folder"
+	if err == nil || !fault.IsBadInput(err) || err.Error() != want {
+		t.Errorf("unlisted folder: %v, want %q", err, want)
+	}
+	listDir = os.ReadDir
+	_, err = shardPaths([]string{dir})
+	if err == nil || !strings.Contains(err.Error(), "holds no partial file") {
+		t.Errorf("empty folder: %v", err)
 	}
 }
