@@ -162,7 +162,7 @@ func (s *Study) openGrid() error {
 	s.res.Grid = report.Grid{Width: g.Width, Height: g.Height, GeoTransform: g.GeoTransform, CRS: g.CRS, Geographic: g.Geographic, CellAreaNote: g.AreaMethod, Unit: g.Unit, UnitM: g.UnitM}
 	s.logf("grid: %dx%d cells, %s, %s", g.Width, g.Height, shortText(g.CRS, 40), g.AreaMethod)
 	if g.FactorTime > 0 {
-		s.logf("cell area ratios of the blocks computed in %.2f s (once for the grids of all models)", g.FactorTime.Seconds())
+		s.logf("cell area ratios of the blocks computed in %.2f s (once for every model of the run, and every study of a batch, on this grid)", g.FactorTime.Seconds())
 	}
 	return nil
 }
