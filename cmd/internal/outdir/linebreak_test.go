@@ -65,3 +65,25 @@ func TestOpenPathTooLong(t *testing.T) {
 	}
 	d.Abort()
 }
+
+// TestOpenNameTooLong: an --out whose last name is close to the 255 bytes
+// a file name may have is refused before the run (exit 2, nothing
+// created), with the lengths: the lock file and the staging folder beside
+// it add a suffix that passes the limit, which was refused as "cannot
+// write in PARENT (file name too long); choose a folder you can write
+// to". A name 60 bytes shorter is taken.
+func TestOpenNameTooLong(t *testing.T) {
+	dir := t.TempDir()
+	_, err := Open(filepath.Join(dir, strings.Repeat("n", 240)), false, nil)
+	if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "last name is 240 bytes") || !strings.Contains(err.Error(), "255 bytes a file name may have") {
+		t.Fatalf("Open of a 240-byte name: %v, want bad input giving the lengths", err)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
+		t.Errorf("left %d entries for a refused --out", len(entries))
+	}
+	d, err := Open(filepath.Join(dir, strings.Repeat("n", 180)), false, nil)
+	if err != nil {
+		t.Fatalf("Open of a 180-byte name: %v", err)
+	}
+	d.Abort()
+}

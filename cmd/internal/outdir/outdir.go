@@ -223,6 +223,9 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	if n := d.longestStaged(); n > maxSQLitePath && !shard {
 		return nil, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
 	}
+	if n := d.longestBeside(); n > nameMax {
+		return nil, fault.BadInput(fmt.Errorf("--out %s: its last name is %d bytes, and the hidden lock file and staging folder areasweep makes beside it add %d: over the %d bytes a file name may have; choose a name of at most %d bytes", out, len(d.name), n-len(d.name), nameMax, nameMax-(n-len(d.name))))
+	}
 	st, err := os.Stat(d.abs)
 	exists := err == nil
 	if exists {
@@ -320,6 +323,21 @@ func (d *Dir) longestStaged() int {
 		where, prefix = d.abs, stagePrefix
 	}
 	return len(where) + 1 + len(prefix) + len(strconv.Itoa(os.Getpid())) + 1 + 10 + len(longestStagedName)
+}
+
+// nameMax is the longest name of a file or folder (NAME_MAX: 255 bytes
+// on Linux's file systems).
+const nameMax = 255
+
+// longestBeside is the length in bytes of the longest name areasweep
+// gives a file or folder beside --out: its lock file, and the staging
+// folder of an --out that does not exist yet (named like longestStaged's).
+func (d *Dir) longestBeside() int {
+	lock := 1 + len(d.name) + len(lockSuffix)
+	if st, err := os.Stat(d.abs); err == nil && st.IsDir() {
+		return lock
+	}
+	return max(lock, 1+len(d.name)+1+len(stagePrefix[1:])+len(strconv.Itoa(os.Getpid()))+1+10)
 }
 
 // CwdGone says that the current folder was removed (os.Getwd fails), with
