@@ -320,13 +320,11 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 			// reads) varies along the rows too: block ratios as on other
 			// projections, where PROJ can invert every block (else the
 			// planar area, as before).
-			method := g.AreaMethod
+			// (computeFactors sets nothing when it fails.)
 			if err := g.computeFactors(); err == nil {
 				g.EqualArea, g.unitArea = false, 0
 				return g, nil
 			}
-			g.blockFactor, g.colSeg, g.colT, g.factorStep, g.factorW = nil, nil, nil, 0, 0
-			g.AreaMethod = method
 		}
 		return g, nil
 	}
