@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"regexp"
 	"slices"
 	"strings"
@@ -284,6 +285,49 @@ func CheckPartialStart(head []byte, source string) error {
 	return nil
 }
 
+// partialMinBytes is the size of the shortest partial file: magic,
+// version, the header's and the sections' lengths, checksum.
+const partialMinBytes = 6 + 4 + 4 + sha256.Size
+
+// partialCutShort and partialSumMismatch are DecodePartial's and
+// CheckPartialSum's refusals of a file of size bytes too short to be a
+// partial file, and of one whose checksum does not match.
+func partialCutShort(source string, size int64) error {
+	return &ShardError{Source: source, Err: ErrPartialFormat, Detail: fmt.Sprintf("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", size)}
+}
+
+func partialSumMismatch(source string) error {
+	return &ShardError{Source: source, Err: ErrPartialFormat, Detail: "checksum mismatch: the file was cut short or changed; run its shard again"}
+}
+
+// CheckPartialSum refuses, as DecodePartial does, a partial file of size
+// bytes, read from r from its start, that is cut short or whose checksum
+// does not match, reading it in pieces: a damaged file of gigabytes that
+// starts like a partial file is refused without being held in memory. A
+// file that ends before size bytes (cut while being read) is cut short;
+// another read error is returned as it is.
+func CheckPartialSum(r io.Reader, size int64, source string) error {
+	if size < partialMinBytes {
+		return partialCutShort(source, size)
+	}
+	h := sha256.New()
+	var sum [sha256.Size]byte
+	_, err := io.CopyN(h, r, size-sha256.Size)
+	if err == nil {
+		_, err = io.ReadFull(r, sum[:])
+	}
+	if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) {
+		return partialCutShort(source, size)
+	}
+	if err != nil {
+		return err
+	}
+	if !bytes.Equal(h.Sum(nil), sum[:]) {
+		return partialSumMismatch(source)
+	}
+	return nil
+}
+
 // DecodePartial reads a partial file; source (the file name) is used in
 // messages and kept in Header.Source. It refuses another format version, a
 // truncated or corrupt file (checksum), an unknown header field and an
@@ -295,15 +339,12 @@ func DecodePartial(data []byte, source string) (*PartialFile, error) {
 	if err := CheckPartialStart(data, source); err != nil {
 		return nil, err
 	}
-	if len(data) < 6 {
-		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
-	}
-	if len(data) < 6+4+4+sha256.Size {
-		return nil, bad("is cut short (%d bytes): its shard did not finish writing it, or the copy was cut; run that shard again", len(data))
+	if len(data) < partialMinBytes {
+		return nil, partialCutShort(source, int64(len(data)))
 	}
 	n := len(data) - sha256.Size
 	if s := sha256.Sum256(data[:n]); !bytes.Equal(s[:], data[n:]) {
-		return nil, bad("checksum mismatch: the file was cut short or changed; run its shard again")
+		return nil, partialSumMismatch(source)
 	}
 	body := data[6:n]
 	take := func(k uint64) ([]byte, bool) {

@@ -252,6 +252,43 @@ func TestDecodePartialRefuses(t *testing.T) {
 	}
 }
 
+// TestCheckPartialSum: the checksum read in pieces accepts what
+// DecodePartial accepts and refuses, with DecodePartial's words, a file
+// cut short or with any byte changed past its first 6 (the bytes
+// CheckPartialStart checks), also when the file ends before the size
+// given (cut while being read).
+func TestCheckPartialSum(t *testing.T) {
+	h := shardSet(2, 10)[1]
+	good, err := EncodePartial(&PartialFile{Header: h, Sections: []PartialSection{{"a", bytes.Repeat([]byte("xyz"), 40000)}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := CheckPartialSum(bytes.NewReader(good), int64(len(good)), "f"); err != nil {
+		t.Fatalf("a whole partial file refused: %v", err)
+	}
+	same := func(what string, data []byte, size int64) {
+		t.Helper()
+		_, want := DecodePartial(data, "f")
+		got := CheckPartialSum(bytes.NewReader(data), size, "f")
+		if want == nil || got == nil || got.Error() != want.Error() {
+			t.Fatalf("%s: CheckPartialSum says %v, DecodePartial %v", what, got, want)
+		}
+	}
+	for _, n := range []int{6, 20, partialMinBytes - 1, partialMinBytes, len(good) / 2, len(good) - 1} {
+		same(fmt.Sprintf("cut to %d bytes", n), good[:n], int64(n))
+	}
+	for _, i := range []int{6, 100, len(good) / 2, len(good) - sha256.Size - 1, len(good) - 1} {
+		b := bytes.Clone(good)
+		b[i] ^= 0x40
+		same(fmt.Sprintf("byte %d changed", i), b, int64(len(b)))
+	}
+	// Stat said len(good) bytes, the read ends 10 bytes short: cut short.
+	err = CheckPartialSum(bytes.NewReader(good[:len(good)-10]), int64(len(good)), "f")
+	if !errors.Is(err, ErrPartialFormat) || !strings.Contains(err.Error(), "is cut short") {
+		t.Fatalf("file ended before its size: %v", err)
+	}
+}
+
 // FuzzDecodePartial: arbitrary bytes, raw and sealed, never panic; what is
 // accepted has a valid header and encodes back to the same bytes when its
 // header JSON is canonical.

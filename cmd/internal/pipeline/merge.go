@@ -235,6 +235,9 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
 			return nil, fault.BadInput(err)
 		}
+		if err := checkLargePartial(f); err != nil {
+			return nil, err
+		}
 		data, err := readPartial(f)
 		if err != nil {
 			return nil, cannotRead(f, err)
@@ -308,6 +311,41 @@ func cannotRead(f string, err error) error {
 		err = pe.Err
 	}
 	return fault.BadInput(fmt.Errorf("partial file %s cannot be read (%v): check that it is still there and that you may read it (its permissions), or run its shard again", shownPath(f), err))
+}
+
+// largePartialBytes is the size above which a partial file's checksum is
+// checked while reading it in pieces before it is read whole. Our choice:
+// a shard's partial file holds a few MB (the 1-bit map of its rows' cells
+// with data is the largest part: 125 MB for all rows of a billion cells),
+// so a larger one is checked first at the cost of one more read.
+var largePartialBytes int64 = 64 << 20
+
+// checkLargePartial refuses partial file f when it is larger than
+// largePartialBytes and cut short or changed (metrics.CheckPartialSum):
+// a damaged file of gigabytes that starts like a partial file was read
+// whole before its checksum was found wrong, and under a job's memory
+// limit merge died with Go's out-of-memory trace.
+func checkLargePartial(f string) error {
+	fh, err := openPartial(f)
+	if err != nil {
+		return cannotRead(f, err)
+	}
+	defer fh.Close()
+	st, err := fh.Stat()
+	if err != nil {
+		return cannotRead(f, err)
+	}
+	if st.Size() <= largePartialBytes {
+		return nil
+	}
+	if err := metrics.CheckPartialSum(fh, st.Size(), shownPath(f)); err != nil {
+		var se *metrics.ShardError
+		if errors.As(err, &se) {
+			return fault.BadInput(err)
+		}
+		return cannotRead(f, err)
+	}
+	return nil
 }
 
 // readHead reads the first n bytes of file f (fewer when it is shorter).

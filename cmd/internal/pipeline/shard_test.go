@@ -285,6 +285,50 @@ func TestReadShardsForeignNotReadWhole(t *testing.T) {
 	}
 }
 
+// TestReadShardsLargeDamagedNotReadWhole: a partial file above
+// largePartialBytes whose checksum is wrong (a damaged copy that starts
+// like a partial file) is refused with DecodePartial's words without
+// being read whole: such a file of gigabytes was read into memory to be
+// refused, and under a job's memory limit merge died with Go's "fatal
+// error: out of memory". One at or below the size is read whole, as
+// before (its checksum is then checked in memory).
+func TestReadShardsLargeDamagedNotReadWhole(t *testing.T) {
+	dir := t.TempDir()
+	var whole []string
+	defer func(f func(string) ([]byte, error), n int64) { readPartial, largePartialBytes = f, n }(readPartial, largePartialBytes)
+	readPartial = func(f string) ([]byte, error) {
+		whole = append(whole, f)
+		return os.ReadFile(f)
+	}
+	largePartialBytes = 1000
+	content := "ASPF\x03\x00" + strings.Repeat("x", 4000) + strings.Repeat("\x00", 32)
+	for _, tc := range []struct {
+		name      string
+		size      int
+		readWhole bool
+	}{
+		{"large.aspf", len(content), false},
+		{"cut.aspf", 1000, true},
+	} {
+		f := filepath.Join(dir, tc.name)
+		if err := os.WriteFile(f, []byte(content[:tc.size]), 0o666); err != nil {
+			t.Fatal(err)
+		}
+		_, want := metrics.DecodePartial([]byte(content[:tc.size]), f)
+		if want == nil {
+			t.Fatal("DecodePartial accepted a damaged file")
+		}
+		whole = nil
+		_, _, err := readShards([]string{f}, "test")
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), want.Error()) {
+			t.Errorf("%s: %v, want a refusal with DecodePartial's words: %v", tc.name, err, want)
+		}
+		if got := len(whole) > 0; got != tc.readWhole {
+			t.Errorf("%s: read whole %v, want %v", tc.name, got, tc.readWhole)
+		}
+	}
+}
+
 // TestReadShardsCannotRead: a partial file that cannot be opened or read
 // (a shard file of mode 000 for a user other than its owner, one removed
 // between the merge's reads) is named once with the system's reason and
