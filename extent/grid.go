@@ -23,7 +23,9 @@ var registerOnce sync.Once
 
 // Configure sets GDAL's configuration for areasweep and registers the
 // drivers. A program calls it once at start, before any GDAL use; the
-// library itself never changes the process environment.
+// library itself never changes the process environment. (Under a limit of
+// address space the package keeps the C heap to MallocArenasUnderLimit
+// arenas from the program's start.)
 //
 //	GDAL_PAM_ENABLED=NO    reading a user's raster never writes a .aux.xml
 //	                       beside it

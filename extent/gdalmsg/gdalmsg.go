@@ -210,6 +210,25 @@ var (
 	illegalBand   = regexp.MustCompile(`^(?:(.*): )?GDALDataset::GetRasterBand\((\d+)\) - Illegal band #$`)
 )
 
+// OutOfMemory begins Cause's wording of a library's failure to allocate
+// memory: "the library ran out of memory (it could not allocate N
+// bytes)". GDAL's words (the first copied from GDAL 3.6.2's output when a
+// block read met a limit of address space, ulimit -v; the others are its
+// CPLMalloc's and the general phrase, recalled from memory) name a source
+// file and line of GDAL's, which a user cannot act on.
+const OutOfMemory = "the library ran out of memory"
+
+var (
+	allocBytes  = regexp.MustCompile(`(?i)^.*?\b(?:cannot|can't|could not|unable to|failed to) allocate (\d+) bytes.*$|^.*?\bout of memory allocating (\d+) bytes.*$`)
+	outOfMemory = regexp.MustCompile(`(?i)\bout of memory\b`)
+)
+
+// IsOutOfMemory tells whether text (an error's, possibly holding Cause's
+// words) reports a library's failure to allocate memory.
+func IsOutOfMemory(text string) bool {
+	return strings.Contains(text, OutOfMemory) || allocBytes.MatchString(text) || outOfMemory.MatchString(text)
+}
+
 // OpenRing is Cause's wording of GDAL's and GEOS's messages for a ring
 // that does not end at its first point.
 const OpenRing = "a polygon's ring does not end at its first point"
@@ -282,6 +301,14 @@ const maxCause = 240
 // collapsed and the length bounded. Messages that only named a function
 // become "the library reported an error".
 func Cause(text string) string {
+	for _, l := range strings.Split(text, "\n") { // on any line: it is the cause
+		if m := allocBytes.FindStringSubmatch(l); m != nil {
+			return fmt.Sprintf("%s (it could not allocate %s bytes)", OutOfMemory, m[1]+m[2])
+		}
+		if outOfMemory.MatchString(l) {
+			return OutOfMemory
+		}
+	}
 	line := ""
 	for _, l := range strings.Split(text, "\n") {
 		if l = strings.TrimSpace(l); l != "" {

@@ -42,6 +42,14 @@ func TestCause(t *testing.T) {
 		// "+proj=garbage +foo", a local engineering CRS and a Mars CRS
 		// (PROJ's).
 		{"Error 1027 (Invalid value for an argument): Unknown projection", "Unknown projection"},
+		// Copied from GDAL 3.6.2's output when a block read met a limit
+		// of address space (ulimit -v 1900000 on a 27-million-cell run);
+		// CPLMalloc's words and the general phrase recalled from memory;
+		// on a second line too (it is the cause whatever came first).
+		{"/gcore/gdalrasterblock.cpp, 1108: cannot allocate 262144 bytes", OutOfMemory + " (it could not allocate 262144 bytes)"},
+		{"CPLMalloc(): Out of memory allocating 1048576 bytes.", OutOfMemory + " (it could not allocate 1048576 bytes)"},
+		{"GTiffRasterBand::IReadBlock(): Out of memory", OutOfMemory},
+		{"IReadBlock failed at X offset 3, Y offset 0\n/gcore/gdalrasterblock.cpp, 1108: cannot allocate 65536 bytes", OutOfMemory + " (it could not allocate 65536 bytes)"},
 		{"Cannot find coordinate operations from `ENGCRS[\"arbitrary\",EDATUM[\"\"],CS[Cartesian,2]]' to `EPSG:4326'", "PROJ knows no transformation between the two CRSs"},
 		{"PROJ: proj_create_operations: Source and target ellipsoid do not belong to the same celestial body", "Source and target ellipsoid do not belong to the same celestial body"},
 		// Copied from GDAL 3.6.2's output on a GeoPackage whose

@@ -24,17 +24,24 @@ func (e InputError) Error() string { return e.Err.Error() }
 func (e InputError) Unwrap() error { return e.Err }
 
 // BadInput wraps err as an input error (nil stays nil; an input error is
-// not wrapped twice).
+// not wrapped twice, nor is an error that is never the input's fault).
 func BadInput(err error) error {
 	if err == nil {
 		return nil
 	}
 	var ie InputError
-	if errors.As(err, &ie) {
+	var ni notInput
+	if errors.As(err, &ie) || errors.As(err, &ni) {
 		return err
 	}
 	return InputError{err}
 }
+
+// notInput is met by errors that are never the input's fault although a
+// library below returns them where input errors arise, such as the pass's
+// *pass.MemoryError (the machine's memory ran out reading a raster):
+// BadInput leaves them as they are (exit 1).
+type notInput interface{ NotInput() }
 
 // InternalError marks a broken internal contract (a bug).
 type InternalError struct{ Err error }

@@ -132,12 +132,35 @@ func (s *gdalSource) readBlock32(x0, y0, w, h int, buf []float32) error {
 
 func (s *gdalSource) read(x0, y0, w, h int, buf any) error {
 	if err := s.band.Read(x0, y0, buf, w, h); err != nil {
-		return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", s.path, x0, y0, gdalmsg.Cause(err.Error()))
+		return blockError(s.path, x0, y0, err)
 	}
 	return nil
 }
 
 func (s *gdalSource) Close() error { return s.ds.Close() }
+
+// blockError words GDAL's error err reading the block at column x0, row
+// y0 of the raster at path: a library that ran out of memory is a
+// *MemoryError, anything else a file that may be truncated or damaged.
+func blockError(path string, x0, y0 int, err error) error {
+	cause := gdalmsg.Cause(err.Error())
+	if gdalmsg.IsOutOfMemory(cause) {
+		return &MemoryError{fmt.Errorf("%s: reading the block at column %d row %d, %s; free some memory, raise the process's limit of virtual memory (ulimit -v, a cluster job's h_vmem) or remove it, or use fewer --workers", path, x0, y0, cause)}
+	}
+	return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", path, x0, y0, cause)
+}
+
+// MemoryError is an error of the pass caused by the machine's memory,
+// not by the file: the command exits 1, not 2.
+type MemoryError struct{ Err error }
+
+func (e *MemoryError) Error() string { return e.Err.Error() }
+
+// Unwrap returns the wrapped error.
+func (e *MemoryError) Unwrap() error { return e.Err }
+
+// NotInput marks the error as never the input's fault (fault.BadInput).
+func (e *MemoryError) NotInput() {}
 
 // Open opens the first band of the raster at path.
 func Open(path string) (*Raster, error) {
@@ -409,7 +432,7 @@ func (r *Raster) each(out chan<- block, free chan []float64) error {
 		buf := <-free
 		buf = buf[:b.W*b.H]
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", r.Path, b.X0, b.Y0, gdalmsg.Cause(err.Error()))
+			return blockError(r.Path, b.X0, b.Y0, err)
 		}
 		out <- block{x0: b.X0, y0: b.Y0, w: b.W, h: b.H, buf: buf}
 	}
