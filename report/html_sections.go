@@ -557,7 +557,7 @@ func settingsSection(r *Results) settingsView {
 		{tc("bootstrap iterations (partial ROC bootstrap, Peterson et al. 2008)"), tc(strconv.Itoa(st.Iterations))},
 		{tc("resample fraction (partial ROC bootstrap; the published one draws 0.5)"), tc(fmtG(st.ResampleFraction))},
 		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
-		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s",
+		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s (described, not judged)",
 			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},
 		{tc("fixed thresholds"), tc(fl(st.FixedThresholds))},
 		{tc("thin to one record per cell"), tc(yesNo(st.ThinPerCell))},

@@ -205,8 +205,9 @@ func methodsInference(b *strings.Builder, r *Results) {
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
 	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
-		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st), MinPairedPoints, fewResamplesNote(r))
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, fewResamplesNote(r))
+	b.WriteString(boyceNotJudged(s, st))
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -523,8 +524,20 @@ func fewResamplesNote(r *Results) string {
 // areasweep's defaults when all of them are: not a published standard.
 func defaultsNote(st Settings) string {
 	if st.ToleranceAUC == DefaultToleranceAUC && st.TolerancePartialROC == DefaultTolerancePartialROC &&
-		st.ToleranceOmission == DefaultToleranceOmission && st.ToleranceBoyce == DefaultToleranceBoyce {
+		st.ToleranceOmission == DefaultToleranceOmission {
 		return "; areasweep's defaults, not a published standard"
+	}
+	return ""
+}
+
+// boyceNotJudged says, when the Boyce index is among s's metrics, that its
+// differences were described, not judged, and why (BoyceCoverage); "".
+func boyceNotJudged(s *Sensitivity, st Settings) string {
+	for _, m := range s.Metrics {
+		if m.Kind == MetricBoyce {
+			return fmt.Sprintf(" The Boyce index's differences were described, not judged: their paired intervals fall short of their 95%% coverage (%s in our simulation check; the index from a sample of test records is biased against its value on the whole presence distribution), so no verdict or ranking rests on them, and we say only how many exceed ±%s.",
+				BoyceCoverage, fmtG(st.ToleranceBoyce))
+		}
 	}
 	return ""
 }
@@ -661,8 +674,8 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s, Boyce index ±%s%s). ",
-			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce), defaultsNote(st))
+		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s).%s ",
+			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), boyceNotJudged(s, st))
 		if n > 2 {
 			// One interval wholly outside makes a score extent-sensitive:
 			// with many extents that is easier to reach by chance.
@@ -678,6 +691,9 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	n := len(s.ScoredExtents)
 	var robust, sensitive, undetermined []string
 	for _, v := range s.Verdicts {
+		if v.Metric == MetricKeyBoyce {
+			continue // described, not judged: said with the tolerances
+		}
 		label := v.Label
 		for _, m := range s.Metrics {
 			if m.Key == v.Metric {

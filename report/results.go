@@ -488,17 +488,36 @@ func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 // notJudgedKind is positionTooFew when p rests on fewer than
 // MinPairedPoints common test points, positionTooFewResamples when its
 // percentile interval comes from fewer than MinPercentileResamples formed
-// resamples, "" when p is judged. Too few points is said first: it is
-// the reason whatever the resamples.
+// resamples, positionNotCalibrated for any other Boyce index difference
+// from the resamples (BoyceCoverage), "" when p is judged. Too few points
+// is said first: it is the reason whatever the resamples.
 func (p *Paired) notJudgedKind() string {
 	switch {
 	case p.CommonPoints < MinPairedPoints:
 		return positionTooFew
 	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
 		return positionTooFewResamples
+	case p.Metric == MetricKeyBoyce && p.Method == "paired_resamples":
+		return positionNotCalibrated
 	}
 	return ""
 }
+
+// MetricKeyBoyce is the MetricInfo key of the Boyce index.
+const MetricKeyBoyce = "boyce"
+
+// BoyceCoverage is what the report says of the coverage of the Boyce
+// index's paired intervals: the range measured by
+// metrics.TestPairedIntervalCoverage (between two models and between two
+// nested extents, 10 to 500 test points; README, "How often the 95%
+// intervals cover"). The index from n test points is biased against its
+// value on the whole presence distribution (which lies near 1 for any
+// model whose presences rise with its value), and differently for each
+// model and extent; a percentile interval of the resampled differences,
+// or the basic interval (measured too: 0.47 to 0.94), does not correct
+// that. So a Boyce difference is described, never judged: no verdict,
+// ranking or reading rests on it.
+const BoyceCoverage = "34% to 88%"
 
 // Formed is the number of paired resamples that formed the difference
 // (Resamples - NotFormed).
@@ -523,6 +542,8 @@ func notJudgedReason(kind string, common, formed int) string {
 		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, MinPairedPoints)
 	case positionTooFewResamples:
 		return fmt.Sprintf("too few resamples: %d formed, our cut-off %d", formed, MinPercentileResamples)
+	case positionNotCalibrated:
+		return "the Boyce index's paired intervals fall short of their 95% coverage: " + BoyceCoverage + " in our simulation check"
 	}
 	return ""
 }

@@ -246,8 +246,9 @@ type ExtentDifference struct {
 	// "outside" (wholly beyond) or "overlapping"; "too_few" when the
 	// difference rests on fewer than MinPairedPoints test points, and
 	// "too_few_resamples" when its percentile interval comes from fewer
-	// than MinPercentileResamples formed resamples (both not judged; an
-	// exact difference always is).
+	// than MinPercentileResamples formed resamples, "not_calibrated" for
+	// every Boyce index difference (BoyceCoverage) (all three not judged;
+	// an exact difference always is).
 	Position string `json:"position"`
 	// NotJudged says why a difference is not judged (Paired.NotJudgedReason);
 	// absent when it is judged.

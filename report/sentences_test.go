@@ -389,7 +389,8 @@ func TestMethodsTextSituations(t *testing.T) {
 		{name: "the sample: half the extents hold every test point",
 			want: []string{"the extents differ in their test records: all 22 on 4 of the 8 extents; base 21,",
 				"on 8 evaluation extents (the base extent and 7 others) from 28.2 to 231 thousand km²",
-				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05, Boyce index ±0.1; areasweep's defaults, not a published standard)",
+				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05; areasweep's defaults, not a published standard)",
+				"The Boyce index's differences were described, not judged",
 				"and undetermined otherwise; a difference on fewer than 10 common test records (our cut-off) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
@@ -1374,16 +1375,21 @@ func TestMethodsDescribeWhatWasComputed(t *testing.T) {
 // extent's straddles it; the sentence says on how many extents the
 // interval straddles the tolerance and names the one reaching furthest.
 func TestUndeterminedSaysWhere(t *testing.T) {
+	// An omission rate (a percentile interval, as the Boyce index's was
+	// before its differences were no longer judged) with a tolerance of
+	// 0.1 set for the run.
+	const key = "omission_minimum_training_presence"
 	r := loadSample(t)
+	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
-		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Diff, p.Low, p.High = 0.01, -0.02, 0.04
+		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Defined, p.Diff, p.Low, p.High = true, 0.01, -0.02, 0.04
 		}
 	}
-	setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, -0.08, 0.03 })
-	setPaired(r, "boyce", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, 0.005, 0.15 })
+	setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, -0.08, 0.03 })
+	setPaired(r, key, PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, 0.005, 0.15 })
 	s := analyzed(t, r)
-	mv := s.findModelVerdict("boyce", "good")
+	mv := s.findModelVerdict(key, "good")
 	if mv.Verdict != JudgementUndetermined {
 		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
 	}

@@ -73,7 +73,7 @@ func buildMetrics(r *Results) []MetricInfo {
 	}
 	for _, s := range r.Scores {
 		if s.Scored && s.Boyce != nil {
-			ms = append(ms, MetricInfo{Key: "boyce", Label: "Boyce index", Kind: MetricBoyce, HigherIsBetter: true, Tolerance: st.ToleranceBoyce})
+			ms = append(ms, MetricInfo{Key: MetricKeyBoyce, Label: "Boyce index", Kind: MetricBoyce, HigherIsBetter: true, Tolerance: st.ToleranceBoyce})
 			break
 		}
 	}

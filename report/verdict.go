@@ -40,15 +40,18 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 // difference whose percentile interval comes from fewer than
 // MinPercentileResamples formed resamples: reported, not judged. The
 // same words are the readings ReadingTooFew and ReadingTooFewResamples.
+// positionNotCalibrated is that of every Boyce index difference from the
+// paired resamples: reported, not judged (BoyceCoverage).
 const (
 	positionTooFew          = "too_few"
 	positionTooFewResamples = "too_few_resamples"
+	positionNotCalibrated   = "not_calibrated"
 )
 
 // notJudgedPosition tells whether pos (an ExtentDifference position or a
 // NullGap reading) marks a difference reported but not judged.
 func notJudgedPosition(pos string) bool {
-	return pos == positionTooFew || pos == positionTooFewResamples
+	return pos == positionTooFew || pos == positionTooFewResamples || pos == positionNotCalibrated
 }
 
 // notJudged tells whether d is defined but not judged.
@@ -191,6 +194,10 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return
 	}
+	if m.Kind == MetricBoyce {
+		mv.Sentence = boyceDescription(name, a.base, mv, m.Tolerance)
+		return
+	}
 	if outside > 0 && mv.Diffs[mv.Largest].notJudged() {
 		// An extent-sensitive verdict rests on the judged differences:
 		// name the largest of those, not one on too few test points
@@ -254,6 +261,29 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
 			name, why, tol, a.base, differenceText(big, m.Tolerance), straddle, notOn, tooFewText(mv.Diffs))
 	}
+}
+
+// boyceDescription describes, without judging, the Boyce index of a
+// model (name: "Boyce index of M") across extents by its differences from
+// base in mv: the largest, and on how many extents a difference lies
+// beyond tol (a description: the intervals are not read, BoyceCoverage).
+func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
+	big := mv.Diffs[mv.Largest]
+	defined, beyond := 0, 0
+	for _, d := range mv.Diffs {
+		if d.Defined {
+			defined++
+			if math.Abs(d.Diff) > tol {
+				beyond++
+			}
+		}
+	}
+	largest := fmt.Sprintf("the largest is %s on %s", signed3(big.Diff), big.Extent)
+	if big.Diff == 0 {
+		largest = "every one is 0"
+	}
+	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d lie beyond ±%s and %s.",
+		name, BoyceCoverage, base, beyond, defined, fmtG(tol), largest)
 }
 
 // toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
@@ -498,6 +528,9 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 		from = "the reference extent " + mvs[0].Base
 	}
 	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
+	if m.Kind == MetricBoyce {
+		v.Sentence = fmt.Sprintf("%s: described, not judged, for every model (its paired intervals fall short of their 95%% coverage: %s in our simulation check).", upperFirst(m.Label), BoyceCoverage)
+	}
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
 	}
@@ -506,10 +539,12 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 
 // rankings compares every pair of models on metric m extent by extent.
 // The predicted area is left out: it has no sampling error, so any
-// difference would count as "beyond noise".
+// difference would count as "beyond noise"; and so is the Boyce index.
 func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 	var out []ModelRanking
-	if m.Kind == MetricAreaFraction {
+	if m.Kind == MetricAreaFraction || m.Kind == MetricBoyce {
+		// The Boyce index's differences are not judged either
+		// (BoyceCoverage).
 		return out
 	}
 	for i, ma := range a.models {

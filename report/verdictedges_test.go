@@ -91,17 +91,22 @@ func TestReferenceExtentVerdictWords(t *testing.T) {
 // The verdict blamed "too few test points" and named no interval; the
 // straddling interval is what leaves it undetermined.
 func TestAllZeroStraddleNotTooFew(t *testing.T) {
+	// Now on an omission rate (a percentile interval too) with a
+	// tolerance of 0.1 set for the run: Boyce differences are no longer
+	// judged (TestBoyceDescribedNotJudged).
+	const key = "omission_minimum_training_presence"
 	r := loadSample(t)
+	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
-		if p := &r.Paired[i]; p.Metric == "boyce" && p.Kind == PairedKindExtent && p.Model == "good" {
+		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {
 			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, 0, 0, 0
 		}
 	}
-	if setPaired(r, "boyce", PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
-		t.Fatal("no Boyce record of good on hull")
+	if setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
+		t.Fatal("no omission record of good on hull")
 	}
 	s := analyzed(t, r)
-	mv := s.findModelVerdict("boyce", "good")
+	mv := s.findModelVerdict(key, "good")
 	if mv == nil || mv.Verdict != JudgementUndetermined {
 		t.Fatalf("verdict: %+v", mv)
 	}
@@ -169,4 +174,49 @@ func TestBoyceUndefinedSaysWhy(t *testing.T) {
 		t.Fatal("no Boyce verdict of good")
 	}
 	checkWords(t, "sentence", mv.Sentence, []string{"it is undefined on base, the base extent (fewer than 3 windows with background area)"}, nil)
+}
+
+// TestBoyceDescribedNotJudged: every Boyce index difference from the
+// paired resamples is reported but not judged (position
+// "not_calibrated", with the reason), whatever its interval: its
+// percentile intervals fall short of their coverage
+// (metrics.TestPairedIntervalCoverage measured 34% to 88%). So its
+// verdict is undetermined with a sentence that describes, it makes no
+// ranking, and the reply names it as described only. Before, a
+// difference of -0.5 with an interval wholly beyond ±0.1 made it
+// extent-sensitive.
+func TestBoyceDescribedNotJudged(t *testing.T) {
+	r := loadSample(t)
+	setPaired(r, MetricKeyBoyce, PairedKindExtent, "good", "whole", func(p *Paired) {
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, -0.5, -0.7, -0.3
+	})
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(MetricKeyBoyce, "good")
+	if mv == nil || mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"Boyce index of good is described, not judged (its paired intervals fall short of their 95% coverage: " + BoyceCoverage,
+		"lie beyond ±0.1", "the largest is -0.500 on whole"}, []string{"extent-sensitive", "95% interval"})
+	for _, d := range mv.Diffs {
+		if d.Defined && d.CommonPoints >= MinPairedPoints && (d.Position != positionNotCalibrated || !strings.Contains(d.NotJudged, "coverage")) {
+			t.Errorf("%s: position %q, reason %q", d.Extent, d.Position, d.NotJudged)
+		}
+	}
+	for _, rk := range s.Rankings {
+		if rk.Metric == MetricKeyBoyce {
+			t.Errorf("a ranking by the Boyce index: %s", rk.Sentence)
+		}
+	}
+	for _, v := range s.Verdicts {
+		if v.Metric == MetricKeyBoyce && !strings.Contains(v.Sentence, "described, not judged") {
+			t.Errorf("metric verdict: %s", v.Sentence)
+		}
+	}
+	for _, p := range r.Paired {
+		if p.Metric == MetricKeyBoyce && p.Defined && p.Judged() {
+			t.Errorf("paired record %s %s %s judged", p.Kind, p.Model, p.Extent)
+		}
+	}
+	reply := reviewerText(r)
+	checkWords(t, "reply", reply, []string{"The Boyce index's differences were described, not judged"}, []string{"For Boyce index the test records cannot tell"})
 }

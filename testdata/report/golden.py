@@ -132,6 +132,11 @@ def difference(key, kind_metric, arg, kind, ma, ea, mb, eb):
     p = PAIRED.get((key, kind, ma, ea, mb, eb))
     if p is None or not p["defined"]:
         return None
+    if kind_metric == "boyce":
+        # Reported, never judged: the Boyce index's paired percentile
+        # intervals fall short of their coverage (areasweep's own
+        # simulation check, metrics/coverage_test.go; our rule).
+        return p["diff"], p["ci_low"], p["ci_high"], "not_calibrated"
     return p["diff"], p["ci_low"], p["ci_high"], position(p["ci_low"], p["ci_high"], tol)
 
 # ------------------------------------------------------------ spreads, slopes
@@ -188,7 +193,7 @@ for key, kind, arg in metrics:
 
 # ------------------------------------------------------------ model rankings
 for key, kind, arg in metrics:
-    if kind == "area_fraction":
+    if kind in ("area_fraction", "boyce"):  # no sampling error / not judged
         continue
     for i, ma in enumerate(models):
         for mb in models[i + 1:]:

@@ -105,6 +105,11 @@
 #     passes through both points and so had r^2 = 1 whatever they were:
 #     the demo's hull chains now have r2_defined false and r2 0;
 #     results.json only, every score and scores.csv unchanged);
+#   - rewritten when the Boyce index's differences stopped being judged
+#     (their paired intervals fall short of their coverage in
+#     metrics.TestPairedIntervalCoverage): the Boyce records' positions,
+#     reasons, verdict sentences and rankings in results.json; every score
+#     and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
