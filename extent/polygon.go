@@ -1092,7 +1092,7 @@ func Fill(g *Grid, mp orb.MultiPolygon, fn func(row, c0, c1 int)) {
 			}
 			keep = append(keep, e)
 			if yc >= lo && yc < hi {
-				xs = append(xs, e.x0+(yc-e.y0)*(e.x1-e.x0)/(e.y1-e.y0))
+				xs = append(xs, crossX(e.x0, e.y0, e.x1, e.y1, yc))
 			}
 		}
 		active = keep
@@ -1110,6 +1110,25 @@ func Fill(g *Grid, mp orb.MultiPolygon, fn func(row, c0, c1 int)) {
 			}
 		}
 	}
+}
+
+// crossX returns the column at which the edge from (x0,y0) to (x1,y1)
+// (pixel coordinates, y0 != y1) crosses row y, interpolated from the
+// endpoint nearer the row (of two as near, the one with the smaller y).
+// The result depends on the edge, not on its direction, so the two
+// polygons that share an edge see it cross a row at the same column and
+// a centre on it goes to one of them only; and the edges that meet at a
+// vertex near the row cross it in their true order, so a polygon whose
+// corner lies on a centre's row (to within rounding) holds no sliver of
+// rounding width there that could take the centre from its neighbour.
+// Interpolating from the far endpoint, as the edge ran in its ring, put
+// the centre at a corner shared by six units of a tiling in two of them,
+// and others in none.
+func crossX(x0, y0, x1, y1, y float64) float64 {
+	if d0, d1 := math.Abs(y-y0), math.Abs(y-y1); d1 < d0 || (d1 == d0 && y1 < y0) {
+		x0, y0, x1, y1 = x1, y1, x0, y0
+	}
+	return x0 + (y-y0)*(x1-x0)/(y1-y0)
 }
 
 // Contains reports whether grid-CRS point (x,y) is inside mp by the same
@@ -1132,7 +1151,7 @@ func Contains(g *Grid, mp orb.MultiPolygon, x, y float64) bool {
 					continue
 				}
 				x0, x1 := (a[0]-gt[0])/gt[1], (b[0]-gt[0])/gt[1]
-				if x0+(py-y0)*(x1-x0)/(y1-y0) <= px {
+				if crossX(x0, y0, x1, y1, py) <= px {
 					in = !in
 				}
 			}
