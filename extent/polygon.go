@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"reflect"
 	"sort"
+	"strconv"
 	"strings"
 	"unicode/utf8"
 
@@ -399,6 +400,17 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 		return "", fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 	}
 	id := v.String()
+	if v.Type() == godal.FTReal && v.IsSet() {
+		// godal writes a real with six decimals ("%f"), which gave two
+		// ids that differ further on (1.0000001 and 1.0000004) one unit:
+		// the shortest text that reads back as the value, without an
+		// exponent, and -0 as 0, the value it equals.
+		f := v.Float()
+		if f == 0 {
+			f = 0
+		}
+		id = strconv.FormatFloat(f, 'f', -1, 64)
+	}
 	if !utf8.ValidString(id) {
 		// A DBF without .cpg whose text is Latin-1 (older shapefiles):
 		// its bytes are read as Latin-1 letters, so that "Zoë" and "Zoé"
