@@ -682,7 +682,9 @@ func fieldName(layer godal.Layer, name string) string {
 // checkNullIDs refuses a unit layer with features whose id field is NULL:
 // they would silently merge into one unit.
 func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field string) error {
-	q := fmt.Sprintf(`SELECT COUNT(*) AS n FROM "%s" WHERE "%s" IS NULL`, strings.ReplaceAll(layer.Name(), `"`, `""`), strings.ReplaceAll(field, `"`, `""`))
+	from := fmt.Sprintf(`FROM "%s"`, strings.ReplaceAll(layer.Name(), `"`, `""`))
+	isNull := fmt.Sprintf(`WHERE "%s" IS NULL`, strings.ReplaceAll(field, `"`, `""`))
+	q := "SELECT COUNT(*) AS n " + from + " " + isNull
 	rs, err := ds.ExecuteSQL(q, godal.OGRSQLDialect())
 	if err != nil || rs == nil {
 		return nil // an unknown field is reported by the reader with the list of fields
@@ -697,7 +699,52 @@ func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field strin
 	if !ok || v.Int() == 0 {
 		return nil
 	}
-	return fmt.Errorf("extent: %s has %d feature(s) with no value (NULL) in field %q; they would merge into one unit: give every unit an id, or delete those features", path, v.Int(), field)
+	which := ""
+	if fids := nullFeatures(ds, from, isNull); len(fids) > 0 {
+		which = " (feature(s) " + featureList(fids) + ", numbered from 1 in the file's order)"
+	}
+	return fmt.Errorf("extent: %s has %d feature(s) with no value (NULL) in field %q%s; they would merge into one unit: give every unit an id, or delete those features", path, v.Int(), field, which)
+}
+
+// nullFeatures returns the numbers (1 for the first read) of the
+// features of the layer (from, an OGR SQL FROM clause) whose id is NULL
+// (isNull, the WHERE clause that says so), from their FIDs (a GeoJSON's
+// count from 0, a GeoPackage's from 1, and either may skip); nil when
+// GDAL cannot list them.
+func nullFeatures(ds *godal.Dataset, from, isNull string) []int {
+	fids := func(q string) []int64 {
+		rs, err := ds.ExecuteSQL(q, godal.OGRSQLDialect())
+		if err != nil || rs == nil {
+			return nil
+		}
+		defer rs.Close()
+		var out []int64
+		for {
+			f := rs.NextFeature()
+			if f == nil {
+				return out
+			}
+			if v, ok := f.Fields()["n"]; ok {
+				out = append(out, v.Int())
+			}
+			f.Close()
+		}
+	}
+	null := fids("SELECT FID AS n " + from + " " + isNull)
+	all := fids("SELECT FID AS n " + from)
+	number := make(map[int64]int, len(all))
+	for i, id := range all {
+		number[id] = i + 1
+	}
+	var out []int
+	for _, id := range null {
+		n, ok := number[id]
+		if !ok {
+			return nil
+		}
+		out = append(out, n)
+	}
+	return out
 }
 
 // invalidFeatures returns the 1-based numbers of the layer's features whose
