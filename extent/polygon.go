@@ -103,9 +103,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 }
 
 // polygonSource is the polygon layer readUnits reads, open and checked:
-// its dataset (a copy in memory once flattened or repaired), the layer,
-// its CRS, the id field (the layer's spelling; "" for none) and what
-// close releases, last opened first.
+// its dataset (a copy in memory once flattened), the layer, its CRS, the
+// id field (the layer's spelling; "" for none), what close releases,
+// last opened first, and the invalid features to repair.
 type polygonSource struct {
 	path   string
 	ds     *godal.Dataset
@@ -113,6 +113,10 @@ type polygonSource struct {
 	lsr    *godal.SpatialRef
 	field  string
 	closes []func()
+
+	// invalid holds the numbers (1 for the first read) of the features
+	// that feature repairs.
+	invalid map[int]bool
 }
 
 func (s *polygonSource) close() {
@@ -260,16 +264,16 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 			return warns, err
 		}
 	}
-	// Invalid features (self-intersections, bad rings) are repaired with
-	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
-	// buffer would drop from a bow-tie, on a copy of the layer in memory.
+	// Invalid features (self-intersections, bad rings) are repaired as
+	// they are read (feature, makeValid), each by GEOS's MakeValid with
+	// its structure method, which keeps all of the area a zero-width
+	// buffer would drop from a bow-tie and also the overlap of two parts
+	// that overlap.
 	if bad, why := invalidFeatures(layer); len(bad) > 0 {
-		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
-		if err != nil {
-			return warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
+		s.invalid = map[int]bool{}
+		for _, n := range bad {
+			s.invalid[n] = true
 		}
-		s.closes = append(s.closes, func() { fixed.Close() })
-		layer = fixed.Layers()[0]
 		warns = append(warns, repairWarning(path, bad, why))
 	}
 	s.ds, s.layer, s.field = ds, layer, field
@@ -330,7 +334,8 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 
 // feature returns the id of feature number fid (1 for the first read) and
 // its own copy of the geometry, checked: an area in the layer's CRS with
-// sane coordinates and edges, valid after the layer's repair; own is nil
+// sane coordinates and edges, valid (repaired by makeValid if it was
+// not, as ready found); own is nil
 // for a feature without geometry. It closes f.
 func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *godal.Geometry, err error) {
 	defer f.Close()
@@ -343,6 +348,14 @@ func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *goda
 	geom := f.Geometry()
 	if noGeometry(geom) {
 		return id, nil, nil
+	}
+	if s.invalid[fid] {
+		fixed, err := makeValid(geom, s.lsr)
+		if err != nil {
+			return "", nil, fmt.Errorf("extent: %s feature %d has invalid geometry (e.g. a self-intersection) that GDAL could not repair (%v); fix it in a GIS", path, fid, err)
+		}
+		defer fixed.Close()
+		geom = fixed
 	}
 	t := geom.Type()
 	if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
