@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"reflect"
 	"sort"
+	"strconv"
 	"strings"
 	"unicode/utf8"
 
@@ -102,9 +103,9 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 }
 
 // polygonSource is the polygon layer readUnits reads, open and checked:
-// its dataset (a copy in memory once flattened or repaired), the layer,
-// its CRS, the id field (the layer's spelling; "" for none) and what
-// close releases, last opened first.
+// its dataset (a copy in memory once flattened), the layer, its CRS, the
+// id field (the layer's spelling; "" for none), what close releases,
+// last opened first, and the invalid features to repair.
 type polygonSource struct {
 	path   string
 	ds     *godal.Dataset
@@ -112,6 +113,10 @@ type polygonSource struct {
 	lsr    *godal.SpatialRef
 	field  string
 	closes []func()
+
+	// invalid holds the numbers (1 for the first read) of the features
+	// that feature repairs.
+	invalid map[int]bool
 }
 
 func (s *polygonSource) close() {
@@ -259,16 +264,16 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 			return warns, err
 		}
 	}
-	// Invalid features (self-intersections, bad rings) are repaired with
-	// GDAL's MakeValid (GEOS), which keeps all of the area a zero-width
-	// buffer would drop from a bow-tie, on a copy of the layer in memory.
+	// Invalid features (self-intersections, bad rings) are repaired as
+	// they are read (feature, makeValid), each by GEOS's MakeValid with
+	// its structure method, which keeps all of the area a zero-width
+	// buffer would drop from a bow-tie and also the overlap of two parts
+	// that overlap.
 	if bad, why := invalidFeatures(layer); len(bad) > 0 {
-		fixed, err := ds.VectorTranslate("", []string{"-makevalid", layer.Name()}, godal.Memory)
-		if err != nil {
-			return warns, fmt.Errorf("extent: %s feature(s) %s have invalid geometry (e.g. self-intersections) that GDAL could not repair (%s); fix them in a GIS", path, featureList(bad), gdalmsg.Cause(err.Error()))
+		s.invalid = map[int]bool{}
+		for _, n := range bad {
+			s.invalid[n] = true
 		}
-		s.closes = append(s.closes, func() { fixed.Close() })
-		layer = fixed.Layers()[0]
 		warns = append(warns, repairWarning(path, bad, why))
 	}
 	s.ds, s.layer, s.field = ds, layer, field
@@ -329,7 +334,8 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 
 // feature returns the id of feature number fid (1 for the first read) and
 // its own copy of the geometry, checked: an area in the layer's CRS with
-// sane coordinates and edges, valid after the layer's repair; own is nil
+// sane coordinates and edges, valid (repaired by makeValid if it was
+// not, as ready found); own is nil
 // for a feature without geometry. It closes f.
 func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *godal.Geometry, err error) {
 	defer f.Close()
@@ -342,6 +348,14 @@ func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *goda
 	geom := f.Geometry()
 	if noGeometry(geom) {
 		return id, nil, nil
+	}
+	if s.invalid[fid] {
+		fixed, err := makeValid(geom, s.lsr)
+		if err != nil {
+			return "", nil, fmt.Errorf("extent: %s feature %d has invalid geometry (e.g. a self-intersection) that GDAL could not repair (%v); fix it in a GIS", path, fid, err)
+		}
+		defer fixed.Close()
+		geom = fixed
 	}
 	t := geom.Type()
 	if t != godal.GTPolygon && t != godal.GTMultiPolygon && t != godal.GTPolygon25D && t != godal.GTMultiPolygon25D && t != godal.GTGeometryCollection {
@@ -399,6 +413,17 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 		return "", fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 	}
 	id := v.String()
+	if v.Type() == godal.FTReal && v.IsSet() {
+		// godal writes a real with six decimals ("%f"), which gave two
+		// ids that differ further on (1.0000001 and 1.0000004) one unit:
+		// the shortest text that reads back as the value, without an
+		// exponent, and -0 as 0, the value it equals.
+		f := v.Float()
+		if f == 0 {
+			f = 0
+		}
+		id = strconv.FormatFloat(f, 'f', -1, 64)
+	}
 	if !utf8.ValidString(id) {
 		// A DBF without .cpg whose text is Latin-1 (older shapefiles):
 		// its bytes are read as Latin-1 letters, so that "Zoë" and "Zoé"
@@ -670,7 +695,9 @@ func fieldName(layer godal.Layer, name string) string {
 // checkNullIDs refuses a unit layer with features whose id field is NULL:
 // they would silently merge into one unit.
 func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field string) error {
-	q := fmt.Sprintf(`SELECT COUNT(*) AS n FROM "%s" WHERE "%s" IS NULL`, strings.ReplaceAll(layer.Name(), `"`, `""`), strings.ReplaceAll(field, `"`, `""`))
+	from := fmt.Sprintf(`FROM "%s"`, strings.ReplaceAll(layer.Name(), `"`, `""`))
+	isNull := fmt.Sprintf(`WHERE "%s" IS NULL`, strings.ReplaceAll(field, `"`, `""`))
+	q := "SELECT COUNT(*) AS n " + from + " " + isNull
 	rs, err := ds.ExecuteSQL(q, godal.OGRSQLDialect())
 	if err != nil || rs == nil {
 		return nil // an unknown field is reported by the reader with the list of fields
@@ -685,7 +712,52 @@ func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field strin
 	if !ok || v.Int() == 0 {
 		return nil
 	}
-	return fmt.Errorf("extent: %s has %d feature(s) with no value (NULL) in field %q; they would merge into one unit: give every unit an id, or delete those features", path, v.Int(), field)
+	which := ""
+	if fids := nullFeatures(ds, from, isNull); len(fids) > 0 {
+		which = " (feature(s) " + featureList(fids) + ", numbered from 1 in the file's order)"
+	}
+	return fmt.Errorf("extent: %s has %d feature(s) with no value (NULL) in field %q%s; they would merge into one unit: give every unit an id, or delete those features", path, v.Int(), field, which)
+}
+
+// nullFeatures returns the numbers (1 for the first read) of the
+// features of the layer (from, an OGR SQL FROM clause) whose id is NULL
+// (isNull, the WHERE clause that says so), from their FIDs (a GeoJSON's
+// count from 0, a GeoPackage's from 1, and either may skip); nil when
+// GDAL cannot list them.
+func nullFeatures(ds *godal.Dataset, from, isNull string) []int {
+	fids := func(q string) []int64 {
+		rs, err := ds.ExecuteSQL(q, godal.OGRSQLDialect())
+		if err != nil || rs == nil {
+			return nil
+		}
+		defer rs.Close()
+		var out []int64
+		for {
+			f := rs.NextFeature()
+			if f == nil {
+				return out
+			}
+			if v, ok := f.Fields()["n"]; ok {
+				out = append(out, v.Int())
+			}
+			f.Close()
+		}
+	}
+	null := fids("SELECT FID AS n " + from + " " + isNull)
+	all := fids("SELECT FID AS n " + from)
+	number := make(map[int64]int, len(all))
+	for i, id := range all {
+		number[id] = i + 1
+	}
+	var out []int
+	for _, id := range null {
+		n, ok := number[id]
+		if !ok {
+			return nil
+		}
+		out = append(out, n)
+	}
+	return out
 }
 
 // invalidFeatures returns the 1-based numbers of the layer's features whose
@@ -1092,7 +1164,7 @@ func Fill(g *Grid, mp orb.MultiPolygon, fn func(row, c0, c1 int)) {
 			}
 			keep = append(keep, e)
 			if yc >= lo && yc < hi {
-				xs = append(xs, e.x0+(yc-e.y0)*(e.x1-e.x0)/(e.y1-e.y0))
+				xs = append(xs, crossX(e.x0, e.y0, e.x1, e.y1, yc))
 			}
 		}
 		active = keep
@@ -1110,6 +1182,25 @@ func Fill(g *Grid, mp orb.MultiPolygon, fn func(row, c0, c1 int)) {
 			}
 		}
 	}
+}
+
+// crossX returns the column at which the edge from (x0,y0) to (x1,y1)
+// (pixel coordinates, y0 != y1) crosses row y, interpolated from the
+// endpoint nearer the row (of two as near, the one with the smaller y).
+// The result depends on the edge, not on its direction, so the two
+// polygons that share an edge see it cross a row at the same column and
+// a centre on it goes to one of them only; and the edges that meet at a
+// vertex near the row cross it in their true order, so a polygon whose
+// corner lies on a centre's row (to within rounding) holds no sliver of
+// rounding width there that could take the centre from its neighbour.
+// Interpolating from the far endpoint, as the edge ran in its ring, put
+// the centre at a corner shared by six units of a tiling in two of them,
+// and others in none.
+func crossX(x0, y0, x1, y1, y float64) float64 {
+	if d0, d1 := math.Abs(y-y0), math.Abs(y-y1); d1 < d0 || (d1 == d0 && y1 < y0) {
+		x0, y0, x1, y1 = x1, y1, x0, y0
+	}
+	return x0 + (y-y0)*(x1-x0)/(y1-y0)
 }
 
 // Contains reports whether grid-CRS point (x,y) is inside mp by the same
@@ -1132,7 +1223,7 @@ func Contains(g *Grid, mp orb.MultiPolygon, x, y float64) bool {
 					continue
 				}
 				x0, x1 := (a[0]-gt[0])/gt[1], (b[0]-gt[0])/gt[1]
-				if x0+(py-y0)*(x1-x0)/(y1-y0) <= px {
+				if crossX(x0, y0, x1, y1, py) <= px {
 					in = !in
 				}
 			}

@@ -5,6 +5,7 @@ package extent
 #include <stdlib.h>
 #include <string.h>
 #include <cpl_error.h>
+#include <cpl_vsi.h>
 #include <ogr_api.h>
 
 // extentValidMsg keeps the first message raised while one geometry's
@@ -49,10 +50,39 @@ static int extentValid(const unsigned char *wkb, int len, char *reason, int reas
 	reason[reasonLen - 1] = 0;
 	return ok;
 }
+
+// extentMakeValid returns the geometry in wkb made valid by GEOS's
+// MakeValid with its structure method (the area inside any outer ring
+// and outside every hole), as WKB of *outLen bytes to free with VSIFree,
+// or NULL when it cannot. Messages raised meanwhile are dropped.
+static unsigned char *extentMakeValid(const unsigned char *wkb, int len, int *outLen) {
+	OGRGeometryH g = NULL, v = NULL;
+	unsigned char *out = NULL;
+	const char *opts[] = {"METHOD=STRUCTURE", NULL};
+	CPLPushErrorHandler(CPLQuietErrorHandler);
+	if (OGR_G_CreateFromWkb(wkb, NULL, &g, len) == OGRERR_NONE && g != NULL) {
+		v = OGR_G_MakeValidEx(g, (CSLConstList)opts);
+		if (v != NULL) {
+			int n = OGR_G_WkbSize(v);
+			out = (unsigned char *)VSIMalloc(n);
+			if (out != NULL && OGR_G_ExportToWkb(v, wkbNDR, out) == OGRERR_NONE) {
+				*outLen = n;
+			} else {
+				VSIFree(out);
+				out = NULL;
+			}
+			OGR_G_DestroyGeometry(v);
+		}
+		OGR_G_DestroyGeometry(g);
+	}
+	CPLPopErrorHandler();
+	return out;
+}
 */
 import "C"
 
 import (
+	"errors"
 	"regexp"
 	"strings"
 	"unsafe"
@@ -85,6 +115,32 @@ func validity(g *godal.Geometry) (valid bool, reason string) {
 	}
 	raw := C.GoString((*C.char)(unsafe.Pointer(&buf[0])))
 	return false, invalidReason(raw)
+}
+
+// makeValid returns g (in srs) repaired by GEOS's MakeValid with its
+// structure method: the area inside any outer ring and outside every
+// hole, so a bow-tie keeps both triangles, two overlapping parts of a
+// multipolygon keep their overlap and a hole that runs out of its shell
+// takes nothing outside it. The default (linework) method, which
+// ogr2ogr -makevalid uses, keeps the area an odd number of rings
+// enclose: it dropped the overlap of two parts and added the part of
+// such a hole outside its shell.
+func makeValid(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	b, err := g.WKB()
+	if err != nil || len(b) == 0 {
+		return nil, errors.New("its geometry cannot be read")
+	}
+	var n C.int
+	out := C.extentMakeValid((*C.uchar)(unsafe.Pointer(&b[0])), C.int(len(b)), &n)
+	if out == nil {
+		return nil, errors.New("GEOS gave no geometry")
+	}
+	defer C.VSIFree(unsafe.Pointer(out))
+	fixed, err := godal.NewGeometryFromWKB(C.GoBytes(unsafe.Pointer(out), n), srs)
+	if err != nil {
+		return nil, errors.New("GEOS gave a geometry that cannot be read")
+	}
+	return fixed, nil
 }
 
 // invalidReason turns GEOS's reason for an invalid geometry into our words
