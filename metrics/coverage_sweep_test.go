@@ -171,29 +171,7 @@ func newCovVariant(t testing.TB, v covVariant) *covLandscape {
 		L.small = append(L.small, i)
 		L.q = append(L.q, int64(math.Round(float64(L.area[i])*math.Pow(suit[i], v.presPow)/10)))
 	}
-	var acc int64
-	for _, q := range L.q {
-		acc += q
-		L.cumQ = append(L.cumQ, acc)
-	}
-	for k := 0; k < 2; k++ {
-		vals := make([]float64, len(L.small))
-		for j, i := range L.small {
-			vals[j] = L.m[k][i]
-		}
-		L.th[k] = covQuantileOfPresences(L, k, []float64{0.1, 0.2}[k])
-		lay, err := NewLayout(vals, 256)
-		if err != nil {
-			t.Fatal(err)
-		}
-		L.acc[k][0], L.acc[k][1] = lay.NewAccumulator(), lay.NewAccumulator()
-		for i, x := range L.m[k] {
-			if L.inSmall[i] {
-				L.acc[k][0].Add(x, L.area[i])
-			}
-			L.acc[k][1].Add(x, L.area[i])
-		}
-	}
+	covFinish(t, L, false) // the coarse variant's model has ties
 	return L
 }
 

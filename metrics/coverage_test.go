@@ -118,6 +118,17 @@ func newCovLandscape(t testing.TB) *covLandscape {
 		q := int64(math.Round(float64(L.area[i]) * math.Pow(suit[i], 2) / 10))
 		L.q = append(L.q, q)
 	}
+	covFinish(t, L, true)
+	return L
+}
+
+// covFinish completes L from its cells, models, small extent and presence
+// weights: the cumulative weights, each model's threshold (the value
+// under which about 10% (A) and 20% (B) of the presence distribution
+// lies, a layout value) and its accumulators on the two extents. With
+// distinct, tied model values in the small extent fail the test.
+func covFinish(t testing.TB, L *covLandscape, distinct bool) {
+	t.Helper()
 	var acc int64
 	for _, q := range L.q {
 		acc += q
@@ -128,13 +139,13 @@ func newCovLandscape(t testing.TB) *covLandscape {
 		for j, i := range L.small {
 			vals[j] = L.m[k][i]
 		}
-		sorted := slices.Clone(vals)
-		slices.Sort(sorted)
-		if len(slices.Compact(sorted)) != len(vals) {
-			t.Fatal("coverage landscape: tied model values in the small extent")
+		if distinct {
+			sorted := slices.Clone(vals)
+			slices.Sort(sorted)
+			if len(slices.Compact(sorted)) != len(vals) {
+				t.Fatal("coverage landscape: tied model values in the small extent")
+			}
 		}
-		// Threshold: the model value under which about 10% (A) and 20%
-		// (B) of the presence distribution lies, a layout value.
 		L.th[k] = covQuantileOfPresences(L, k, []float64{0.1, 0.2}[k])
 		lay, err := NewLayout(vals, 256)
 		if err != nil {
@@ -148,7 +159,6 @@ func newCovLandscape(t testing.TB) *covLandscape {
 			L.acc[k][1].Add(v, L.area[i])
 		}
 	}
-	return L
 }
 
 // covQuantileOfPresences returns the value of model k at the small
