@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -225,17 +226,7 @@ func globEscape(s string) string {
 func readShards(files []string, version string) (*shardfile.Merged, metrics.ShardHeader, error) {
 	var headers []metrics.ShardHeader
 	read := func(f string) ([]byte, error) {
-		// The first bytes first: a foreign file (a raster, an archive)
-		// of gigabytes is refused without being read whole, which met a
-		// job's memory limit with Go's "fatal error: out of memory".
-		head, err := readHead(f, metrics.PartialStartBytes)
-		if err != nil {
-			return nil, cannotRead(f, err)
-		}
-		if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
-			return nil, fault.BadInput(err)
-		}
-		if err := checkLargePartial(f); err != nil {
+		if err := checkPartial(f); err != nil {
 			return nil, err
 		}
 		data, err := readPartial(f)
@@ -295,7 +286,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 }
 
 // readPartial reads a whole partial file, openPartial opens one for its
-// first bytes, listDir lists a folder given as a shard's (seams for tests).
+// checks (checkPartial), listDir lists a folder given as a shard's (seams for tests).
 var (
 	readPartial = os.ReadFile
 	openPartial = os.Open
@@ -320,17 +311,28 @@ func cannotRead(f string, err error) error {
 // so a larger one is checked first at the cost of one more read.
 var largePartialBytes int64 = 64 << 20
 
-// checkLargePartial refuses partial file f when it is larger than
-// largePartialBytes and cut short or changed (metrics.CheckPartialSum):
-// a damaged file of gigabytes that starts like a partial file was read
-// whole before its checksum was found wrong, and under a job's memory
-// limit merge died with Go's out-of-memory trace.
-func checkLargePartial(f string) error {
+// checkPartial refuses partial file f, before it is read whole, when its
+// first bytes show another kind of file (metrics.CheckPartialStart) or,
+// when it is larger than largePartialBytes, when it is cut short or
+// changed (metrics.CheckPartialSum, read in pieces from the same open
+// file): a foreign file or a damaged copy of gigabytes was read whole to
+// be refused, and under a job's memory limit merge died with Go's "fatal
+// error: out of memory".
+func checkPartial(f string) error {
 	fh, err := openPartial(f)
 	if err != nil {
 		return cannotRead(f, err)
 	}
 	defer fh.Close()
+	head := make([]byte, metrics.PartialStartBytes)
+	k, err := io.ReadFull(fh, head)
+	if err != nil && err != io.EOF && err != io.ErrUnexpectedEOF {
+		return cannotRead(f, err)
+	}
+	head = head[:k]
+	if err := metrics.CheckPartialStart(head, shownPath(f)); err != nil {
+		return fault.BadInput(err)
+	}
 	st, err := fh.Stat()
 	if err != nil {
 		return cannotRead(f, err)
@@ -338,7 +340,7 @@ func checkLargePartial(f string) error {
 	if st.Size() <= largePartialBytes {
 		return nil
 	}
-	if err := metrics.CheckPartialSum(fh, st.Size(), shownPath(f)); err != nil {
+	if err := metrics.CheckPartialSum(io.MultiReader(bytes.NewReader(head), fh), st.Size(), shownPath(f)); err != nil {
 		var se *metrics.ShardError
 		if errors.As(err, &se) {
 			return fault.BadInput(err)
@@ -346,21 +348,6 @@ func checkLargePartial(f string) error {
 		return cannotRead(f, err)
 	}
 	return nil
-}
-
-// readHead reads the first n bytes of file f (fewer when it is shorter).
-func readHead(f string, n int) ([]byte, error) {
-	fh, err := openPartial(f)
-	if err != nil {
-		return nil, err
-	}
-	defer fh.Close()
-	head := make([]byte, n)
-	k, err := io.ReadFull(fh, head)
-	if err != nil && err != io.EOF && err != io.ErrUnexpectedEOF {
-		return nil, err
-	}
-	return head[:k], nil
 }
 
 // givenList names the partial files given, for the refusal of missing
