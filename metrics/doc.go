@@ -99,6 +99,8 @@
 //     Ecological Modelling 199:142-152. See Boyce.
 //   - Placements and DeLong's variance: DeLong, DeLong & Clarke-Pearson
 //     (1988) Biometrics 44:837-845. See PlacementSE, PairedPlacements.
+//   - The t interval of a mean of paired differences: Student (1908)
+//     Biometrika 6:1-25. See PairedPlacements, T975.
 //   - Percentile intervals of paired resamples: Efron & Tibshirani (1993)
 //     An Introduction to the Bootstrap, ch. 13. See Compare.
 package metrics

@@ -1,8 +1,11 @@
 package metrics
 
 import (
+	"encoding/csv"
 	"math"
+	"os"
 	"sort"
+	"strconv"
 	"testing"
 )
 
@@ -242,6 +245,49 @@ func TestQuantileGolden(t *testing.T) {
 				t.Errorf("quantiles %v %v, numpy %v %v", lo, hi, q.P025, q.P975)
 			}
 		})
+	}
+}
+
+// TestT975AgainstR compares the t quantile of the paired AUC intervals
+// with R's qt(0.975, df) (t975_golden.csv, written by golden.R), to a
+// relative 1e-10 (our tolerance: gonum's quantile differs from R's by
+// 1.7e-11 relative at df = 100000 and by less than 1e-13 up to df = 1000),
+// and with the closed forms at 1 and 2 degrees of freedom (recalled from
+// memory: t with 1 df is the standard Cauchy distribution, quantile
+// tan(pi (p - 1/2)); with 2 df the quantile is (2p - 1) / sqrt(2p(1 - p))).
+// SciPy 1.10's scipy.stats.t.ppf is not used: it differs from both by up
+// to 1e-9 relative.
+func TestT975AgainstR(t *testing.T) {
+	f, err := os.Open(goldenDir + "t975_golden.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) < 11 || rows[0][0] != "df" || rows[0][1] != "q" {
+		t.Fatalf("t975_golden.csv: %d rows, header %v; want df,q and at least 10 rows", len(rows), rows[0])
+	}
+	for _, r := range rows[1:] {
+		df, err1 := strconv.Atoi(r[0])
+		q, err2 := strconv.ParseFloat(r[1], 64)
+		if err1 != nil || err2 != nil {
+			t.Fatalf("t975_golden.csv row %v", r)
+		}
+		if got := T975(df); !(math.Abs(got-q) <= 1e-10*q) {
+			t.Errorf("T975(%d) = %.17g, R %.17g", df, got, q)
+		}
+	}
+	p := 0.975
+	for _, c := range []struct {
+		df   int
+		want float64
+	}{{1, math.Tan(math.Pi * (p - 0.5))}, {2, (2*p - 1) / math.Sqrt(2*p*(1-p))}} {
+		if got := T975(c.df); !(math.Abs(got-c.want) <= 1e-13*c.want) {
+			t.Errorf("T975(%d) = %.17g, closed form %.17g", c.df, got, c.want)
+		}
 	}
 }
 

@@ -7,12 +7,18 @@ import (
 	"slices"
 	"sort"
 	"sync"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// Z975 is the 0.975 quantile of the standard normal distribution
-// (Abramowitz & Stegun 1964, table 26.1: 1.959963984540054), used for the
-// 95% intervals of paired placement differences.
-const Z975 = 1.959963984540054
+// T975 returns the 0.975 quantile of Student's t distribution with df
+// degrees of freedom (df >= 1), the multiplier of the 95% intervals of
+// paired placement differences (PairedPlacements). It is gonum's
+// distuv.StudentsT quantile, which agrees with R's qt to a relative 1e-10
+// (TestT975AgainstR).
+func T975(df int) float64 {
+	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(df)}.Quantile(0.975)
+}
 
 // Interval is a paired difference A - B with its standard error and 95%
 // interval. Defined is false (all numbers 0) when fewer than two common
@@ -32,13 +38,19 @@ type Interval struct {
 //	D_i  = a_i - b_i
 //	Diff = mean(D)
 //	SE   = sqrt( sum_i (D_i - Diff)^2 / (n (n - 1)) )
-//	95% interval: Diff -+ z_0.975 SE
+//	95% interval: Diff -+ t_{0.975, n-1} SE
 //
 // Because each AUC is the mean of its placements, Diff is the difference of
 // the two AUCs on these presences, and SE is the presence part of DeLong's
 // variance of a difference of correlated AUCs with the backgrounds taken
 // as complete populations (DeLong, DeLong & Clarke-Pearson 1988,
-// Biometrics 44:837-845). It panics when the lengths differ.
+// Biometrics 44:837-845). With the backgrounds complete, the test
+// presences are the only sample, and Diff is the mean of n paired
+// differences: the interval is the one-sample Student t interval of that
+// mean (Student 1908, Biometrika 6:1-25), where the normal quantile of
+// DeLong's large-sample interval covers less than 95% at small n (0.91 at
+// n = 10 in TestPairedIntervalCoverage; the t quantile 0.93 to 0.96 over
+// the landscapes of TestCoverageSweep). It panics when the lengths differ.
 func PairedPlacements(a, b []float64) Interval {
 	if len(a) != len(b) {
 		panic("metrics: PairedPlacements: length mismatch")
@@ -60,7 +72,8 @@ func PairedPlacements(a, b []float64) Interval {
 	}
 	iv.Diff = m
 	iv.SE = math.Sqrt(ss / (float64(n) * float64(n-1)))
-	iv.Low, iv.High = m-Z975*iv.SE, m+Z975*iv.SE
+	q := T975(n - 1)
+	iv.Low, iv.High = m-q*iv.SE, m+q*iv.SE
 	iv.Defined = true
 	return iv
 }

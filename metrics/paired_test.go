@@ -52,6 +52,11 @@ func TestDeLongAgainstPROC(t *testing.T) {
 	}
 }
 
+// pairedWant is a paired difference of golden.py: mean, SE and the 95%
+// interval mean -+ t_{0.975, n-1} SE (the t quantile from
+// scipy.special.betaincinv, which agrees with R's qt to about 1e-15 here).
+type pairedWant struct{ Diff, SE, Low, High float64 }
+
 // pairedCase mirrors one case of paired_golden.json (golden.py).
 type pairedCase struct {
 	Name           string
@@ -59,9 +64,9 @@ type pairedCase struct {
 	A, B           []int64
 	Inner          []int
 	Points         []int
-	ExtentDiff     struct{ Diff, SE float64 } `json:"extent_diff"`
-	ModelDiffOuter struct{ Diff, SE float64 } `json:"model_diff_outer"`
-	ModelDiffInner struct{ Diff, SE float64 } `json:"model_diff_inner"`
+	ExtentDiff     pairedWant `json:"extent_diff"`
+	ModelDiffOuter pairedWant `json:"model_diff_outer"`
+	ModelDiffInner pairedWant `json:"model_diff_inner"`
 	Scores         map[string]struct {
 		Points     []int
 		Placements []float64
@@ -137,15 +142,17 @@ func TestPairedAgainstNumpy(t *testing.T) {
 				}
 			}
 			d := Draws{N: len(c.Points), B: 20, Seed: 5}
-			check := func(what string, a, b *Evaluator, want struct{ Diff, SE float64 }) {
+			// The interval's ends to 1e-12 plus the t quantile's tolerance
+			// against R (TestT975AgainstR) times the SE.
+			check := func(what string, a, b *Evaluator, want pairedWant) {
 				cmp, err := Compare(a, b, d)
 				if err != nil {
 					t.Fatal(err)
 				}
 				iv := cmp.AUC
 				if !iv.Defined || !near(iv.Diff, want.Diff, 1e-12) || !near(iv.SE, want.SE, 1e-12) ||
-					!near(iv.Low, want.Diff-Z975*want.SE, 1e-12) || !near(iv.High, want.Diff+Z975*want.SE, 1e-12) {
-					t.Errorf("%s: %+v, numpy diff %.17g SE %.17g", what, iv, want.Diff, want.SE)
+					!near(iv.Low, want.Low, 1e-12+3e-10*want.SE) || !near(iv.High, want.High, 1e-12+3e-10*want.SE) {
+					t.Errorf("%s: %+v, numpy diff %.17g SE %.17g interval %.17g to %.17g", what, iv, want.Diff, want.SE, want.Low, want.High)
 				}
 			}
 			check("inner minus outer (model a)", evals["a/inner"], evals["a/outer"], c.ExtentDiff)

@@ -25,7 +25,7 @@ const delong1988 = "DeLong, E.R., DeLong, D.M. & Clarke-Pearson, D.L. (1988) Com
 // extent-sensitive study: the per-study verdicts of Analyze, added up.
 const ExtentSensitiveDefinition = "Within each study, and for each model, AUC on every extent was compared with AUC on the study's base extent " +
 	"(or, where the base extent could not be scored, on the first scored extent, which stands in for it as the reference) " +
-	"by the paired difference on the test points both extents hold, with a normal 95% interval from the per-point placements " +
+	"by the paired difference on the test points both extents hold, with a Student t 95% interval (n − 1 degrees of freedom for n common test points; Student 1908) from the per-point placements " +
 	"(the presence component of the variance of DeLong et al. 1988: an extent's cells are its whole background, not a sample). " +
 	"A model's AUC is extent-sensitive when at least one of these intervals lies wholly beyond ±T, robust when every interval lies within ±T, " +
 	"and undetermined otherwise (an interval straddles ±T, a difference could not be formed, or it rests on fewer than 10 common test points, " +
@@ -96,6 +96,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	if c.NullPairs > 0 {
 		refs = append(refs, hijmans2012)
 	}
+	refs = append(refs, student1908)
 	return append(secs, textSection{Heading: "References", List: refs})
 }
 

@@ -204,7 +204,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 	s, st := r.Sensitivity, r.Settings
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a normal 95%% interval, for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
+	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
 	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (our cut-off)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
@@ -449,7 +449,11 @@ var references = []string{
 	"Hirzel, A.H., Le Lay, G., Helfer, V., Randin, C. & Guisan, A. (2006) Evaluating the ability of habitat suitability models to predict species presences. Ecological Modelling 199: 142-152.",
 	"Legendre, P. (2005) Species associations: the Kendall coefficient of concordance revisited. Journal of Agricultural, Biological and Environmental Statistics 10: 226-245.",
 	"Peterson, A.T., Papeş, M. & Soberón, J. (2008) Rethinking receiver operating characteristic analysis applications in ecological niche modeling. Ecological Modelling 213: 63-72.",
+	student1908,
 }
+
+// student1908 is cited for the t interval of the paired AUC differences.
+const student1908 = "Student (1908) The probable error of a mean. Biometrika 6: 1-25."
 
 // resultNumbers states, per model, the AUC range and verdict, the partial
 // ROC verdict, the model comparison and the independence check.

@@ -35,7 +35,13 @@ import (
 //
 // and adds model above null: paired records of kind PairedKindNull (every model
 // minus every null per extent) and sensitivity.above_null.
-const SchemaVersion = 3
+//
+// Version 4 changes the meaning of ci_low and ci_high of the paired
+// records of method "placements": the Student t 95% interval with n - 1
+// degrees of freedom (metrics.PairedPlacements) where version 3 had the
+// normal one. A version 3 file is refused, so that its intervals are
+// never described with the words of the other.
+const SchemaVersion = 4
 
 // Results is the whole of one run as written to results.json. Every slice is
 // kept in a stable order (extents in family order, scores by model then
@@ -426,7 +432,8 @@ type Preview struct {
 // extent (Kind PairedKindNull: Model minus the null OtherModel).
 //
 // Method "placements": AUC differences from per-point placements, SE =
-// sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a normal 95% interval.
+// sqrt(sum (D_i - mean D)^2 / (n(n-1))) and a Student t 95% interval
+// (n - 1 degrees of freedom).
 // Method "paired_resamples": the other scores, over the run's full-size
 // paired resamples restricted to the common points; SE is the SD of the
 // resampled differences and the interval their 2.5 and 97.5 percentiles.

@@ -25,7 +25,7 @@ const (
 	// training point (our choice).
 	NearShareWarn = 0.25
 	// MinPairedPoints: a paired difference on fewer common test points
-	// than this is reported but not judged (our choice): its normal
+	// than this is reported but not judged (our choice): its t
 	// interval from the placements, or its percentile interval from the
 	// resamples of so few points, is no basis for a verdict, a ranking or
 	// a reading against a null (with 3 points the interval can even have

@@ -339,7 +339,7 @@ func TestHeadlineRankings(t *testing.T) {
 	r := analyzedSample(t)
 	for _, w := range []string{
 		"By AUC, good and truncated differ beyond noise on none of 6 extents",
-		"good is better than broad beyond noise on 6 of 8 extents",
+		"good is better than broad beyond noise on 5 of 8 extents",
 		"truncated is better than broad beyond noise on 4 of 6 extents",
 		"The partial ROC ratio at E = 0.05 is extent-sensitive for good, truncated and broad.",
 	} {

@@ -14,7 +14,7 @@ import (
 // sentence then seemed to count among those beyond the tolerance (an audit of edge
 // sweep: 10 test points, one extent holding 9). The differences are those
 // of the sample run (results.json of testdata/report): good's AUC on
-// whole, +0.138 (0.067 to 0.209), is the largest of the judged ones.
+// whole, +0.138 (0.063 to 0.213), is the largest of the judged ones.
 func TestSensitiveVerdictCitesJudged(t *testing.T) {
 	r := loadSample(t)
 	if setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
@@ -32,10 +32,10 @@ func TestSensitiveVerdictCitesJudged(t *testing.T) {
 		t.Errorf("largest %d: %+v", mv.Largest, mv.Diffs)
 	}
 	checkWords(t, "sentence", mv.Sentence,
-		[]string{"the largest is +0.138 on whole (95% interval +0.067 to +0.209)", "Not judged, on fewer than 10 common test points (our cut-off): points_b25 (6)."},
+		[]string{"the largest is +0.138 on whole (95% interval +0.063 to +0.213)", "Not judged, on fewer than 10 common test points (our cut-off): points_b25 (6)."},
 		[]string{"the largest is -0.300"})
 	checkWords(t, "headline", s.Headline,
-		[]string{"is extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.067 to +0.209)"},
+		[]string{"is extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.063 to +0.213)"},
 		[]string{"-0.300 on points_b25"})
 	checkWords(t, "methods", methodsText(r), []string{"extent-sensitive (largest difference from base +0.138 on whole"}, []string{"-0.300 on points_b25"})
 }

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 	"areasweep/report"
 )
 
@@ -114,7 +115,7 @@ func TestPairedAgainstRawCells(t *testing.T) {
 				ss += (x - m) * (x - m)
 			}
 			sd := math.Sqrt(ss / float64(len(d)*(len(d)-1)))
-			if math.Abs(p.Diff-m) > 1e-9 || math.Abs(p.SE-sd) > 1e-9 || math.Abs(p.Low-(m-1.959963984540054*sd)) > 1e-9 {
+			if math.Abs(p.Diff-m) > 1e-9 || math.Abs(p.SE-sd) > 1e-9 || math.Abs(p.Low-(m-metrics.T975(len(d)-1)*sd)) > 1e-9 {
 				t.Errorf("%s - %s: diff %.12f SE %.12f, raw cells %.12f %.12f", p.Extent, p.OtherExtent, p.Diff, p.SE, m, sd)
 			}
 			pairs++

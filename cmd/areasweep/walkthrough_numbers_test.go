@@ -50,7 +50,7 @@ var wtUnchecked = []struct{ text, why string }{
 	{"took 0.03 s in this run", "a wall-clock time, not a result"},
 	{"2.5–97.5 percentile interval", "the definition of the 95% interval of the bootstrap, not a result"},
 	{"(Peterson et al. 2008)", "a citation"},
-	{"normal 95% interval", "the definition of the interval"},
+	{"Student t 95% interval", "the definition of the interval"},
 	{"the 1 − E crossing", "a formula"},
 	{"at or above P10", "the threshold's name"},
 	{"reaches y = 1 early", "the corner of the ROC plot, not a result"},

@@ -14,6 +14,8 @@
 #                          DeLong & Clarke-Pearson (1988) variance of the
 #                          AUC with every (replicated) background row a
 #                          sampled cell, counted once
+# It also writes t975_golden.csv: R's qt(0.975, df), the 0.975 quantile of
+# Student's t (base R, stats), for the paired AUC intervals' multiplier.
 # pROC has no case weights, so integer weights are honoured by replicating
 # background rows. Deterministic: no randomness is used.
 suppressPackageStartupMessages(library(pROC))
@@ -43,3 +45,7 @@ for (name in unique(cases$case)) {
   }
 }
 write.csv(out, file.path(here, "proc_golden.csv"), row.names = FALSE, quote = FALSE)
+
+dfs <- c(1, 2, 3, 4, 5, 9, 10, 19, 29, 30, 44, 49, 99, 499, 1000, 100000)
+write.csv(data.frame(df = sprintf("%d", as.integer(dfs)), q = sprintf("%.17g", qt(0.975, dfs))),
+          file.path(here, "t975_golden.csv"), row.names = FALSE, quote = FALSE)
