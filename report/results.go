@@ -688,10 +688,17 @@ func Decode(path string, data []byte) (*Results, error) {
 }
 
 // otherVersion says that the file at path has another schema version,
-// written by the software version by ("" if unknown), and what to do.
+// written by the software version by ("" if unknown), and what to do: an
+// older file is best run again (builds of one development version can
+// write different schema versions, so the version alone may not find the
+// build that wrote it), a newer one re-rendered by the build that wrote it.
 func otherVersion(path string, version int, by string) error {
 	if by != "" {
 		by = " (" + by + ")"
+	}
+	if version < SchemaVersion {
+		return fmt.Errorf("report: %s has schema_version %d, written by an earlier areasweep%s; this build reads %d: run the study again with this build, or re-render it with the build that wrote it",
+			path, version, by, SchemaVersion)
 	}
 	return fmt.Errorf("report: %s has schema_version %d, this build reads %d: re-render it with the areasweep version that wrote it%s, or run the study again with this one",
 		path, version, SchemaVersion, by)

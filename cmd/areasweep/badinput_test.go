@@ -468,6 +468,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	rdAUC := reportDir("report-auc", badAUC)
 	rdBroken := reportDir("report-broken", `{"schema_version": 1, "scores": [`)
 	rdSchema := reportDir("report-schema", `{"schema_version": 99}`)
+	rdOldSchema := reportDir("report-old-schema", `{"schema_version": 3, "software": {"name": "areasweep", "version": "0.1.0-dev"}}`)
 
 	// Existing outputs.
 	nonEmpty := filepath.Join(f.outs, "nonempty")
@@ -662,6 +663,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"report AUC -5", []string{"report", rdAUC}, 2, []string{"results.json", ".auc: -5 is outside [0, 1]"}, "", rdAUC},
 		{"report broken JSON", []string{"report", rdBroken}, 2, []string{"results.json", "not a results file"}, "", rdBroken},
 		{"report other schema", []string{"report", rdSchema}, 2, []string{"schema_version 99"}, "", rdSchema},
+		{"report older schema", []string{"report", rdOldSchema}, 2, []string{"schema_version 3, written by an earlier areasweep (0.1.0-dev)", "run the study again with this build"}, "", rdOldSchema},
 		{"report where figures is a file", []string{"report", rdFigFile, "--force"}, 2, []string{"figures is a file", "move the file"}, "", rdFigFile},
 		{"report on a shard's folder", []string{"report", rdShard}, 2, []string{"shard-1-of-2.aspf", "merge the shards first"}, "", rdShard},
 		{"report on a file", []string{"report", rdFile}, 2, []string{"notes.txt is a file", "folder holding results.json"}, "", filepath.Dir(rdFile)},
