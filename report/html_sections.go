@@ -112,8 +112,14 @@ func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlT
 				continue
 			}
 			if d.notJudged() {
-				// The difference describes; its interval is not read.
-				row = append(row, nc(d.Diff, 4), dash, tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc("not judged ("+d.why()+")"))
+				// The difference describes; its interval is not read. The
+				// Boyce index's reason is the same on every row and its
+				// verdict's sentence above gives it whole.
+				why := d.why()
+				if d.Position == positionNotCalibrated {
+					why = "intervals not calibrated: see the sentence above"
+				}
+				row = append(row, nc(d.Diff, 4), dash, tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc("not judged ("+why+")"))
 				rows = append(rows, row)
 				continue
 			}

@@ -219,4 +219,20 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 	}
 	reply := reviewerText(r)
 	checkWords(t, "reply", reply, []string{"The Boyce index's differences were described, not judged"}, []string{"For Boyce index the test records cannot tell"})
+	// The report's table gives the short reason on each Boyce row (the
+	// verdict's sentence above it has the whole one), the full one on none.
+	_, tb := differencesSection(s, map[string]string{MetricKeyBoyce: "Boyce index"})
+	short := 0
+	for _, row := range tb.Rows {
+		last := row[len(row)-1].text
+		if strings.Contains(last, "coverage") {
+			t.Errorf("table row %v repeats the whole reason", row[:3])
+		}
+		if row[0].text == "Boyce index" && last == "not judged (intervals not calibrated: see the sentence above)" {
+			short++
+		}
+	}
+	if short == 0 {
+		t.Error("no Boyce row of the differences table says its intervals are not calibrated")
+	}
 }
