@@ -29,7 +29,7 @@ const (
 	ReadingNotAbove  = "not_above" // 95% interval includes 0
 	ReadingBelow     = "below"     // 95% interval wholly below 0
 	ReadingUndefined = "undefined" // no paired difference could be formed
-	ReadingTooFew    = "too_few"   // on fewer than MinPairedPoints common test points: not read
+	ReadingTooFew    = "too_few"   // on fewer common test points than the metric is judged on (MinPairedPoints, MinResampledPoints): not read
 	// ReadingTooFewResamples: the interval comes from fewer than
 	// MinPercentileResamples formed paired resamples: not read.
 	ReadingTooFewResamples = "too_few_resamples"
@@ -196,7 +196,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints())
 	case an.BaseReading == ReadingTooFewResamples:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
@@ -223,7 +223,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		notTold := ""
 		kp, kb := an.notRead()
 		if kp > 0 {
-			notTold += fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", kp, MinPairedPoints)
+			notTold += fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", kp, m.minCommonPoints())
 		}
 		if kb > 0 {
 			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
@@ -233,11 +233,11 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		switch {
 		case an.Above+an.NotAbove+an.Below > 0:
 		case kb == 0:
-			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", MinPairedPoints)
+			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", m.minCommonPoints())
 		case kp == 0:
 			counts = fmt.Sprintf("no gap is read: each interval comes from fewer than the %d formed resamples we read a gap on (our cut-off)", MinPercentileResamples)
 		default:
-			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", MinPairedPoints, MinPercentileResamples)
+			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", m.minCommonPoints(), MinPercentileResamples)
 		}
 		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s (a description of this family of extents).",
 			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
@@ -246,7 +246,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 }
 
 // notRead counts the defined gaps of an that are not read: kp on fewer
-// than MinPairedPoints common test points, kb from fewer than
+// common test points than the metric is judged on, kb from fewer than
 // MinPercentileResamples formed resamples.
 func (an *AboveNull) notRead() (kp, kb int) {
 	for _, g := range an.Gaps {
@@ -267,7 +267,7 @@ func (g *NullGap) why() string {
 	if g.NotJudged != "" || !g.Defined || !notJudgedPosition(g.Reading) {
 		return g.NotJudged
 	}
-	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed)
+	return notJudgedReason(g.Reading, g.Method, g.CommonPoints, g.nFormed)
 }
 
 // zero reports whether the gap and both ends of its interval are 0.
@@ -292,8 +292,8 @@ func (an *AboveNull) allZero() bool {
 // "(the smallest extent)" and "(the largest)" when they are the smallest
 // and largest of the extents compared, "(the smallest extent where it is
 // defined)" when the difference is undefined on some smaller one, and
-// each end's common test points when they are fewer than MinPairedPoints
-// (such a gap is a description, not read against 0).
+// each end's common test points when they are fewer than the metric is
+// judged on (such a gap is a description, not read against 0).
 func (an *AboveNull) gapEnds() (small, large string) {
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, g := range an.Gaps {

@@ -68,7 +68,7 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 	if row[3].text != "1.884" || row[4].text != "1.884" {
 		t.Errorf("ratio and mean: %s, %s", row[3].text, row[4].text)
 	}
-	checkWords(t, "table caption", v.TooFewNote, []string{"fewer than 10 test records (our cut-off, as for the paired differences)"}, nil)
+	checkWords(t, "table caption", v.TooFewNote, []string{"fewer than 10 test records (our cut-off, as for the AUC's paired differences)"}, nil)
 	td, err := teachData(r)
 	if err != nil {
 		t.Fatal(err)

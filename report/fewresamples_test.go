@@ -22,12 +22,15 @@ func TestPairedJudgedCutOffs(t *testing.T) {
 	}{
 		{"placements, 10 points, no resamples", "placements", 10, 0, 0, true, ""},
 		{"placements, 9 points", "placements", 9, 0, 0, false, "too few common test points: 9, our cut-off 10"},
-		{"resamples, 40 formed", "paired_resamples", 10, 40, 0, true, ""},
-		{"resamples, 39 formed", "paired_resamples", 10, 39, 0, false, "too few resamples: 39 formed, our cut-off 40"},
+		{"resamples, 30 points, 40 formed", "paired_resamples", 30, 40, 0, true, ""},
+		{"resamples, 29 points", "paired_resamples", 29, 100, 0, false, "too few common test points: 29, our cut-off 30"},
+		{"resamples, 10 points", "paired_resamples", 10, 100, 0, false, "too few common test points: 10, our cut-off 30"},
+		{"resamples, 39 formed", "paired_resamples", 30, 39, 0, false, "too few resamples: 39 formed, our cut-off 40"},
 		{"resamples, 10 drawn", "paired_resamples", 90, 10, 0, false, "too few resamples: 10 formed, our cut-off 40"},
 		{"resamples, 45 drawn, 6 not formed", "paired_resamples", 90, 45, 6, false, "too few resamples: 39 formed, our cut-off 40"},
 		{"resamples, 46 drawn, 6 not formed", "paired_resamples", 90, 46, 6, true, ""},
-		{"few points and few resamples: the points first", "paired_resamples", 5, 10, 0, false, "too few common test points: 5, our cut-off 10"},
+		{"few points and few resamples: the points first", "paired_resamples", 5, 10, 0, false, "too few common test points: 5, our cut-off 30"},
+		{"exact, 10 points", "exact", 10, 0, 0, true, ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -48,7 +51,8 @@ func TestPairedJudgedCutOffs(t *testing.T) {
 
 // fewResamples returns the sample run with a null's partial ROC and AUC
 // records for good and every paired_resamples record drawn from b
-// resamples, all of which formed.
+// resamples, all of which formed, on at least MinResampledPoints common
+// test points (liftResampled).
 func fewResamples(t *testing.T, b int) (*Results, string) {
 	t.Helper()
 	r := withNull(t)
@@ -64,7 +68,7 @@ func fewResamples(t *testing.T, b int) (*Results, string) {
 		}
 	}
 	r.Settings.PairedResamples = b
-	return r, key
+	return liftResampled(r), key
 }
 
 // TestFewResamplesNotJudged: with fewer than 40 formed resamples a paired
@@ -381,4 +385,74 @@ func TestHeadlineFewResamplesNamesModels(t *testing.T) {
 			checkWords(t, "headline", s.Headline, []string{c.want}, nil)
 		})
 	}
+}
+
+// TestResampledPointsCutOff: a difference from the paired resamples (the
+// partial ROC ratio, omission, Boyce) on fewer than MinResampledPoints
+// common test points is not judged, while an AUC difference from the
+// placements on as many is. The sample holds 20 to 22 test points per
+// extent: its AUC verdicts stand, its partial ROC ratio's and omission
+// rates' are undetermined, and every sentence, the headline, the methods
+// and the page name the cut-off of 30.
+func TestResampledPointsCutOff(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	for _, p := range nullPaired(r) {
+		p.Metric, p.Method = key, "paired_resamples"
+		r.Paired = append(r.Paired, p)
+	}
+	s := analyzed(t, r)
+	for _, mv := range s.ModelVerdicts {
+		switch {
+		case mv.Metric == "auc":
+			if mv.Verdict != JudgementSensitive {
+				t.Errorf("AUC of %s on 20 to 22 points: %s", mv.Model, mv.Sentence)
+			}
+		case mv.Metric == key || strings.HasPrefix(mv.Metric, "omission_"):
+			if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "Not judged, on fewer than 30 common test points (our cut-off):") {
+				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
+			}
+			for _, d := range mv.Diffs {
+				if d.Defined && (d.Position != positionTooFew || !strings.HasSuffix(d.NotJudged, "our cut-off 30")) {
+					t.Errorf("%s of %s on %s: %q %q", mv.Metric, mv.Model, d.Extent, d.Position, d.NotJudged)
+				}
+			}
+		}
+	}
+	for _, rk := range s.Rankings {
+		if rk.Metric == key && (rk.Extents != 0 || !strings.Contains(rk.Sentence, "share fewer than 30 test points (our cut-off)")) {
+			t.Errorf("ranking: %+v", rk)
+		}
+	}
+	found := false
+	for _, an := range s.AboveNull {
+		if an.Metric == key {
+			found = true
+			if an.BaseReading != ReadingTooFew || !strings.Contains(an.Sentence, "fewer than the 30 we judge a difference on (our cut-off)") {
+				t.Errorf("against the null: %s: %s", an.BaseReading, an.Sentence)
+			}
+		}
+		if an.Metric == "auc" && an.BaseReading == ReadingTooFew {
+			t.Errorf("AUC against the null not read on 20 to 22 points: %s", an.Sentence)
+		}
+	}
+	if !found {
+		t.Fatal("no partial ROC comparison with the null")
+	}
+	checkWords(t, "headline", s.Headline, []string{"is undetermined for good, truncated and broad (not judged: every difference rests on fewer than the 30 common test points we judge a difference from the resamples on, our cut-off)"}, nil)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"(30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer)"}, nil)
+	// One model's differences lifted to 30 points: the headline names the
+	// others.
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Method == "paired_resamples" && p.Model == "good" && p.Kind == PairedKindExtent {
+			p.CommonPoints = MinResampledPoints
+		}
+	}
+	s = analyzed(t, r)
+	checkWords(t, "headline", s.Headline, []string{"(not judged for truncated and broad: every difference rests on fewer than the 30 common test points"}, nil)
 }

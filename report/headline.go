@@ -156,6 +156,25 @@ func fewResampleModels(mvs []ModelVerdict) []string {
 	return few
 }
 
+// fewPointModels names the models of mvs whose defined differences all
+// rest on too few common test points to be judged (at least one defined).
+func fewPointModels(mvs []ModelVerdict) []string {
+	var few []string
+	for _, mv := range mvs {
+		n, all := 0, true
+		for _, d := range mv.Diffs {
+			if d.Defined {
+				n++
+				all = all && d.Position == positionTooFew
+			}
+		}
+		if n > 0 && all {
+			few = append(few, mv.Model)
+		}
+	}
+	return few
+}
+
 // testPointText says how many test points the extents hold.
 func testPointText(s *Sensitivity) string {
 	if len(s.TestPoints) == 0 {
@@ -280,6 +299,10 @@ func headline(a *analysis, s *Sensitivity) string {
 					} else if len(few) > 0 {
 						pr += fmt.Sprintf(" (not judged for %s: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", joinList(few), n, Plural(n), MinPercentileResamples)
 					}
+				} else if few := fewPointModels(mvs); len(few) == len(mvs) {
+					pr += fmt.Sprintf(" (not judged: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", MinResampledPoints)
+				} else if len(few) > 0 {
+					pr += fmt.Sprintf(" (not judged for %s: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", joinList(few), MinResampledPoints)
 				}
 				fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
 			}

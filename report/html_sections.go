@@ -15,9 +15,9 @@ type analysisView struct {
 	BaseExtent string
 	// StandIn, when the base extent could not be scored, says that
 	// BaseExtent stands in for it and why; "" otherwise.
-	StandIn         string
-	PairedResamples int
-	MinPairedPoints int
+	StandIn                             string
+	PairedResamples                     int
+	MinPairedPoints, MinResampledPoints int
 	// MinPercentileResamples is the cut-off on formed resamples.
 	MinPercentileResamples int
 	// MapModel is the model whose omitted test points the maps mark, ""
@@ -72,7 +72,7 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinResampledPoints: MinResampledPoints, MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
 	if s.BaseExtent != vocab.BaseID {
 		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
 		if v.StandIn == "" {
@@ -479,7 +479,7 @@ func scoresSection(r *Results) scoresView {
 				// Too few test points (or resamples) for an interval
 				// or a test: the mean only.
 				row = append(row, full, nc(pr.RatioMean, 3), dash, dash)
-				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the paired differences), or where fewer than %d resamples formed a ratio (our cut-off, as for the paired differences), the percentiles and P are not given (–): resamples of so few records, or so few resamples, are no basis for an interval or a test.", MinPairedPoints, MinPercentileResamples)
+				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the AUC's paired differences), or where fewer than %d resamples formed a ratio (our cut-off, as for the paired differences), the percentiles and P are not given (–): resamples of so few records, or so few resamples, are no basis for an interval or a test.", MinPairedPoints, MinPercentileResamples)
 			} else {
 				row = append(row, full, nc(pr.RatioMean, 3),
 					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},

@@ -492,15 +492,15 @@ func BootstrapReadable(pr PartialROC, n int) bool {
 // reported, not judged (NotJudgedReason says why).
 func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 
-// notJudgedKind is positionTooFew when p rests on fewer than
-// MinPairedPoints common test points, positionTooFewResamples when its
+// notJudgedKind is positionTooFew when p rests on fewer common test
+// points than its method is judged on (minCommonPoints), positionTooFewResamples when its
 // percentile interval comes from fewer than MinPercentileResamples formed
 // resamples, positionNotCalibrated for any other Boyce index difference
 // from the resamples (BoyceCoverage), "" when p is judged. Too few points
 // is said first: it is the reason whatever the resamples.
 func (p *Paired) notJudgedKind() string {
 	switch {
-	case p.CommonPoints < MinPairedPoints:
+	case p.CommonPoints < minCommonPoints(p.Method):
 		return positionTooFew
 	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
 		return positionTooFewResamples
@@ -537,16 +537,27 @@ func (p *Paired) NotJudgedReason() string {
 	if !p.Defined {
 		return ""
 	}
-	return notJudgedReason(p.notJudgedKind(), p.CommonPoints, p.Formed())
+	return notJudgedReason(p.notJudgedKind(), p.Method, p.CommonPoints, p.Formed())
+}
+
+// minCommonPoints is the fewest common test points a paired difference
+// of method is judged on: MinResampledPoints for a percentile interval of
+// the paired resamples, MinPairedPoints for the others.
+func minCommonPoints(method string) int {
+	if method == "paired_resamples" {
+		return MinResampledPoints
+	}
+	return MinPairedPoints
 }
 
 // notJudgedReason words a not-judged kind (positionTooFew,
-// positionTooFewResamples) for a difference on common test points
-// from formed resamples; "" for any other kind.
-func notJudgedReason(kind string, common, formed int) string {
+// positionTooFewResamples, positionNotCalibrated) for a difference of
+// method on common test points from formed resamples; "" for any other
+// kind.
+func notJudgedReason(kind, method string, common, formed int) string {
 	switch kind {
 	case positionTooFew:
-		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, MinPairedPoints)
+		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, minCommonPoints(method))
 	case positionTooFewResamples:
 		return fmt.Sprintf("too few resamples: %d formed, our cut-off %d", formed, MinPercentileResamples)
 	case positionNotCalibrated:

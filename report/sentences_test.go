@@ -41,6 +41,20 @@ func analyzed(t *testing.T, r *Results) *Sensitivity {
 	return r.Sensitivity
 }
 
+// liftResampled raises the common test points of every difference from
+// the paired resamples in r to MinResampledPoints where they are fewer
+// (the sample holds 20 to 22 test points per extent, so none of its
+// resampled differences is judged), for tests of how such differences
+// are judged once they rest on enough points; no other number changes.
+func liftResampled(r *Results) *Results {
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Method == "paired_resamples" && p.CommonPoints < MinResampledPoints {
+			p.CommonPoints = MinResampledPoints
+		}
+	}
+	return r
+}
+
 // intervalRe finds the "95% interval A to B" of a sentence.
 var intervalRe = regexp.MustCompile(`95% interval ([+-]?[0-9.]+) to ([+-]?[0-9.]+)`)
 
@@ -117,7 +131,7 @@ func TestVerdictSentences(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			r := loadSample(t)
+			r := liftResampled(loadSample(t))
 			if c.build != nil {
 				c.build(r)
 			}
@@ -335,13 +349,14 @@ func TestHeadlineRankings(t *testing.T) {
 			t.Errorf("%+v: %q, want %q", c.rk, got, c.want)
 		}
 	}
-	// The sample's three models: every pair, in the headline.
+	// The sample's three models: every pair, in the headline (its partial
+	// ROC differences, on 20 to 22 common test points, are not judged).
 	r := analyzedSample(t)
 	for _, w := range []string{
 		"By AUC, good and truncated differ beyond noise on none of 6 extents",
 		"good is better than broad beyond noise on 5 of 8 extents",
 		"truncated is better than broad beyond noise on 4 of 6 extents",
-		"The partial ROC ratio at E = 0.05 is extent-sensitive for good, truncated and broad.",
+		"The partial ROC ratio at E = 0.05 is undetermined for good, truncated and broad (not judged: every difference rests on fewer than the 30 common test points we judge a difference from the resamples on, our cut-off).",
 	} {
 		if !strings.Contains(r.Sensitivity.Headline, w) {
 			t.Errorf("headline lacks %q: %s", w, r.Sensitivity.Headline)
@@ -391,10 +406,13 @@ func TestMethodsTextSituations(t *testing.T) {
 				"on 8 evaluation extents (the base extent and 7 others) from 28.2 to 231 thousand km²",
 				"tolerances we chose (AUC ±0.02, partial ROC ratio ±0.05, omission rate and predicted area ±0.05; areasweep's defaults, not a published standard)",
 				"The Boyce index's differences were described, not judged",
-				"and undetermined otherwise; a difference on fewer than 10 common test records (our cut-off) was not judged, and the intervals were not adjusted",
+				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
-				"AUC (cells unweighted), the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1 and predicted area at minimum training presence moved"},
+				"AUC, AUC (cells unweighted) and predicted area at minimum training presence moved",
+				// On 20 to 22 common test points no difference from the
+				// resamples is judged.
+				"For the partial ROC ratio at E = 0.05, the partial ROC ratio at E = 0.1, omission at minimum training presence, omission at 10th percentile training presence and omission at fixed threshold 0.5 the test records cannot tell"},
 			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,", "the base extent, base,"}},
 		{name: "no extent holds every test point",
 			build: func(r *Results) {
@@ -672,7 +690,7 @@ func TestRankingSentenceReasons(t *testing.T) {
 		{"undefined on every extent", func(p *Paired) { p.Defined = false },
 			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
 		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
-			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 10 test points (our cut-off).", ""},
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 30 test points (our cut-off).", ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -971,7 +989,7 @@ func TestNullGapEndsNamed(t *testing.T) {
 // few test points, every difference being 0, does not name one extent's
 // "+0.000" as the largest.
 func TestTooFewAllZero(t *testing.T) {
-	r := loadSample(t)
+	r := liftResampled(loadSample(t))
 	const metric = "omission_minimum_training_presence"
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
@@ -986,7 +1004,7 @@ func TestTooFewAllZero(t *testing.T) {
 	if mv.Verdict != JudgementUndetermined {
 		t.Fatalf("verdict %s: %s", mv.Verdict, mv.Sentence)
 	}
-	checkWords(t, "sentence", mv.Sentence, []string{"although every difference from base is 0", "Not judged, on fewer than 10 common test points (our cut-off): hull (6)"},
+	checkWords(t, "sentence", mv.Sentence, []string{"although every difference from base is 0", "Not judged, on fewer than 30 common test points (our cut-off): hull (6)"},
 		[]string{"the largest difference from base is +0.000"})
 }
 
@@ -1110,7 +1128,7 @@ func TestIndependenceWording(t *testing.T) {
 // model" and "every model", and do not describe differences between
 // models; a null's paired differences are described as such.
 func TestSingleModelText(t *testing.T) {
-	r := withNull(t)
+	r := liftResampled(withNull(t))
 	r.Paired = append(r.Paired, nullPaired(r)...)
 	keep := func(m string) bool { return m == "good" || m == DistanceNullName }
 	var ms []Model
@@ -1349,7 +1367,7 @@ func TestTenPointCutoffOurs(t *testing.T) {
 			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off)"}, nil)
 		}
 	}
-	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (our cut-off) was not judged"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs) was not judged"}, nil)
 	page, err := htmlPage(r, nil, "")
 	if err != nil {
 		t.Fatal(err)
@@ -1379,7 +1397,7 @@ func TestUndeterminedSaysWhere(t *testing.T) {
 	// before its differences were no longer judged) with a tolerance of
 	// 0.1 set for the run.
 	const key = "omission_minimum_training_presence"
-	r := loadSample(t)
+	r := liftResampled(loadSample(t))
 	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {

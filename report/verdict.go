@@ -35,10 +35,11 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 	return out, vary
 }
 
-// positionTooFew is the position of a difference on fewer than
-// MinPairedPoints common test points, positionTooFewResamples that of a
-// difference whose percentile interval comes from fewer than
-// MinPercentileResamples formed resamples: reported, not judged. The
+// positionTooFew is the position of a difference on fewer common test
+// points than its method is judged on (minCommonPoints),
+// positionTooFewResamples that of a difference whose percentile interval
+// comes from fewer than MinPercentileResamples formed resamples: reported,
+// not judged. The
 // same words are the readings ReadingTooFew and ReadingTooFewResamples.
 // positionNotCalibrated is that of every Boyce index difference from the
 // paired resamples: reported, not judged (BoyceCoverage).
@@ -63,7 +64,7 @@ func (d ExtentDifference) why() string {
 	if d.NotJudged != "" || !d.notJudged() {
 		return d.NotJudged
 	}
-	return notJudgedReason(d.Position, d.CommonPoints, d.nFormed)
+	return notJudgedReason(d.Position, d.Method, d.CommonPoints, d.nFormed)
 }
 
 // position places the interval lo..hi against -tol..+tol.
@@ -370,17 +371,20 @@ func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) stri
 }
 
 // tooFewText names the differences left unjudged, for resting on fewer
-// than MinPairedPoints test points (with their common test points) or on
+// common test points than their method is judged on (minCommonPoints;
+// with their common test points) or on
 // fewer than MinPercentileResamples formed resamples (with the formed
 // resamples), or "".
 func tooFewText(ds []ExtentDifference) string {
 	var few, fewB, fewBIDs []string
 	formed := map[int]bool{}
+	cut := MinPairedPoints
 	for _, d := range ds {
 		switch {
 		case !d.Defined:
 		case d.Position == positionTooFew:
 			few = append(few, fmt.Sprintf("%s (%d)", d.Extent, d.CommonPoints))
+			cut = minCommonPoints(d.Method)
 		case d.Position == positionTooFewResamples:
 			fewB = append(fewB, fmt.Sprintf("%s (%d)", d.Extent, d.nFormed))
 			fewBIDs = append(fewBIDs, d.Extent)
@@ -389,7 +393,7 @@ func tooFewText(ds []ExtentDifference) string {
 	}
 	out := ""
 	if len(few) > 0 {
-		out += fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", MinPairedPoints, joinList(few))
+		out += fmt.Sprintf(" Not judged, on fewer than %d common test points (our cut-off): %s.", cut, joinList(few))
 	}
 	switch {
 	case len(fewB) > 1 && len(formed) == 1:
@@ -417,7 +421,7 @@ func notJudgedWhy(ds []ExtentDifference) string {
 }
 
 // notJudgedCounts counts the defined differences of ds not judged: on
-// fewer than MinPairedPoints common test points (points), and from fewer
+// fewer common test points than their method is judged on (points), and from fewer
 // than MinPercentileResamples formed resamples (resamples).
 func notJudgedCounts(ds []ExtentDifference) (points, resamples int) {
 	for _, d := range ds {
@@ -576,19 +580,19 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			tooFew, tooFewB := notJudgedCounts(r.Diffs)
 			switch {
 			case r.Extents == 0 && tooFew > 0 && tooFewB == 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, MinPairedPoints)
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, m.minCommonPoints())
 			case r.Extents == 0 && tooFewB > 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB))
+				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB, m.minCommonPoints()))
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			case r.identical():
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
-				r.Sentence += notCountedText(tooFew, tooFewB)
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints())
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
-				r.Sentence += notCountedText(tooFew, tooFewB)
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints())
 			}
 			out = append(out, r)
 		}
@@ -597,13 +601,13 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 }
 
 // notCountedText says on how many extents a model comparison was not
-// judged: tooFew where the models share fewer than MinPairedPoints test
-// points, tooFewB where the difference's interval comes from fewer than
-// MinPercentileResamples formed resamples; "" when on none.
-func notCountedText(tooFew, tooFewB int) string {
+// judged: tooFew where the models share fewer than cut test points (the
+// metric's minCommonPoints), tooFewB where the difference's interval comes
+// from fewer than MinPercentileResamples formed resamples; "" when on none.
+func notCountedText(tooFew, tooFewB, cut int) string {
 	out := ""
 	if tooFew > 0 {
-		out += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), MinPairedPoints)
+		out += fmt.Sprintf(" Not counted: %d extent%s where they share fewer than %d test points (our cut-off).", tooFew, Plural(tooFew), cut)
 	}
 	if tooFewB > 0 {
 		out += fmt.Sprintf(" Not counted: %d extent%s where the difference rests on fewer than %d formed resamples (our cut-off).", tooFewB, Plural(tooFewB), MinPercentileResamples)
@@ -613,11 +617,12 @@ func notCountedText(tooFew, tooFewB int) string {
 
 // notComparedWhy says why two models are compared on no extent, some
 // differences being on too few common test points (tooFew of them) and
-// the others from too few formed resamples (tooFewB).
-func notComparedWhy(tooFew, tooFewB int) string {
+// the others from too few formed resamples (tooFewB); cut is the fewest
+// common test points the metric is judged on.
+func notComparedWhy(tooFew, tooFewB, cut int) string {
 	out := fmt.Sprintf("the difference rests on fewer than %d formed resamples on %d extent%s (our cut-off)", MinPercentileResamples, tooFewB, Plural(tooFewB))
 	if tooFew > 0 {
-		out = fmt.Sprintf("they share fewer than %d test points on %d extent%s and ", MinPairedPoints, tooFew, Plural(tooFew)) + out
+		out = fmt.Sprintf("they share fewer than %d test points on %d extent%s and ", cut, tooFew, Plural(tooFew)) + out
 	}
 	return out
 }

@@ -99,7 +99,7 @@ func TestAllZeroStraddleNotTooFew(t *testing.T) {
 	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, 0, 0, 0
+			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, MinResampledPoints, 0, 0, 0
 		}
 	}
 	if setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
@@ -186,9 +186,9 @@ func TestBoyceUndefinedSaysWhy(t *testing.T) {
 // difference of -0.5 with an interval wholly beyond ±0.1 made it
 // extent-sensitive.
 func TestBoyceDescribedNotJudged(t *testing.T) {
-	r := loadSample(t)
+	r := liftResampled(loadSample(t))
 	setPaired(r, MetricKeyBoyce, PairedKindExtent, "good", "whole", func(p *Paired) {
-		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 20, -0.5, -0.7, -0.3
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, -0.5, -0.7, -0.3
 	})
 	s := analyzed(t, r)
 	mv := s.findModelVerdict(MetricKeyBoyce, "good")
@@ -198,7 +198,7 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 	checkWords(t, "sentence", mv.Sentence, []string{"Boyce index of good is described, not judged (its paired intervals fall short of their 95% coverage: " + BoyceCoverage,
 		"lie beyond ±0.1", "the largest is -0.500 on whole"}, []string{"extent-sensitive", "95% interval"})
 	for _, d := range mv.Diffs {
-		if d.Defined && d.CommonPoints >= MinPairedPoints && (d.Position != positionNotCalibrated || !strings.Contains(d.NotJudged, "coverage")) {
+		if d.Defined && d.CommonPoints >= MinResampledPoints && (d.Position != positionNotCalibrated || !strings.Contains(d.NotJudged, "coverage")) {
 			t.Errorf("%s: position %q, reason %q", d.Extent, d.Position, d.NotJudged)
 		}
 	}

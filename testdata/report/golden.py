@@ -9,7 +9,9 @@ with numpy/scipy only, every number report.Analyze derives:
     differences from the base extent (results "paired"; exact differences
     for the predicted area) against the tolerances in the settings: every
     95% interval inside -T..+T -> robust, one wholly outside ->
-    extent-sensitive, otherwise undetermined; and per metric the summary;
+    extent-sensitive, otherwise undetermined (a difference on fewer common
+    test points than 10 from the placements or 30 from the paired
+    resamples is "too_few", not judged); and per metric the summary;
   * per metric and pair of models, the extents where one is better beyond
     noise (95% interval excluding 0);
   * the two-way sum-of-squares split of each metric over the models x
@@ -132,6 +134,11 @@ def difference(key, kind_metric, arg, kind, ma, ea, mb, eb):
     p = PAIRED.get((key, kind, ma, ea, mb, eb))
     if p is None or not p["defined"]:
         return None
+    # Not judged on too few common test points (README, our cut-offs): 10
+    # for a difference from the placements, 30 for one from the paired
+    # resamples (partial ROC ratio, omission, Boyce index).
+    if p["common_points"] < (30 if p["method"] == "paired_resamples" else 10):
+        return p["diff"], p["ci_low"], p["ci_high"], "too_few"
     if kind_metric == "boyce":
         # Reported, never judged: the Boyce index's paired percentile
         # intervals fall short of their coverage (areasweep's own
@@ -183,6 +190,10 @@ for key, kind, arg in metrics:
                 rec["largest"] = big
                 if any(x["position"] == "outside" for x in defined):
                     rec["verdict"] = "extent-sensitive"
+                    if rec["diffs"][big]["position"] == "too_few":
+                        # The verdict names the largest judged difference.
+                        rec["largest"] = max((i for i, x in enumerate(rec["diffs"]) if x["defined"] and x["position"] != "too_few"),
+                                             key=lambda i: abs(rec["diffs"][i]["diff"]))
                 elif len(defined) == len(rec["diffs"]) and all(x["position"] == "inside" for x in defined):
                     rec["verdict"] = "robust"
         out["model_verdicts"].append(rec)
@@ -202,7 +213,7 @@ for key, kind, arg in metrics:
                 if usable(ma, e["id"]) is None or usable(mb, e["id"]) is None:
                     continue
                 d = difference(key, kind, arg, "model", ma, e["id"], mb, e["id"])
-                if d is None:
+                if d is None or d[3] == "too_few":
                     continue
                 rec["extents"] += 1
                 up, down = d[1] > 0, d[2] < 0
