@@ -38,10 +38,12 @@ const (
 	// from the coverage simulation of metrics.TestCoverageSweep on eight
 	// landscapes: on 10 common test points up to 12% of the partial ROC
 	// ratio's intervals between two models, and up to 9% of the omission
-	// rate's, lay wholly on the wrong side of the default tolerance; on
-	// 30, at most 1.9% and 0.1%, within the 2.5% a correct 95% interval
-	// allows; the placements' t interval of the AUC stays below 1.5% from
-	// 10). Its position is "too_few", as below MinPairedPoints, and its
+	// rate's, were placed against the default tolerance contrary to the
+	// true difference ("inside" with the truth beyond it, or "outside"
+	// with it within); on 30, at most 1.9% and 0.1%, within the 2.5% a
+	// correct 95% interval allows; the placements' t interval of the AUC
+	// errs so below 1.5% of the time from 10). Its position is "too_few",
+	// as below MinPairedPoints, and its
 	// reason names this cut-off.
 	MinResampledPoints = 30
 	// MinPercentileResamples: with fewer resamples than this a 2.5th and
