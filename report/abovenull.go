@@ -85,6 +85,9 @@ type NullGap struct {
 	NotJudged string `json:"not_judged_reason,omitempty"`
 	// nFormed is the number of resamples that formed the difference.
 	nFormed int
+	// minPoints is the fewest common test points it is read on
+	// (minCommonPoints).
+	minPoints int
 }
 
 // gapReading reads a defined interval against 0.
@@ -125,7 +128,7 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p == nil {
 						continue
 					}
-					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined, nFormed: p.Formed()}
+					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined, nFormed: p.Formed(), minPoints: p.minPoints()}
 					if i, ok := a.extIndex[id]; ok {
 						g.AreaKm2 = a.r.Extents[i].AreaKm2
 					}
@@ -196,7 +199,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints())
+			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
 	case an.BaseReading == ReadingTooFewResamples:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
@@ -223,7 +226,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		notTold := ""
 		kp, kb := an.notRead()
 		if kp > 0 {
-			notTold += fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", kp, m.minCommonPoints())
+			notTold += fmt.Sprintf(", and not told on %d with fewer than %d common test points (our cut-off)", kp, m.minCommonPoints(PairedKindNull))
 		}
 		if kb > 0 {
 			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
@@ -233,11 +236,11 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		switch {
 		case an.Above+an.NotAbove+an.Below > 0:
 		case kb == 0:
-			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", m.minCommonPoints())
+			counts = fmt.Sprintf("no extent has the %d common test points we read a gap on (our cut-off)", m.minCommonPoints(PairedKindNull))
 		case kp == 0:
 			counts = fmt.Sprintf("no gap is read: each interval comes from fewer than the %d formed resamples we read a gap on (our cut-off)", MinPercentileResamples)
 		default:
-			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", m.minCommonPoints(), MinPercentileResamples)
+			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", m.minCommonPoints(PairedKindNull), MinPercentileResamples)
 		}
 		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s (a description of this family of extents).",
 			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
@@ -267,7 +270,11 @@ func (g *NullGap) why() string {
 	if g.NotJudged != "" || !g.Defined || !notJudgedPosition(g.Reading) {
 		return g.NotJudged
 	}
-	return notJudgedReason(g.Reading, g.Method, g.CommonPoints, g.nFormed)
+	cut := g.minPoints
+	if cut == 0 { // a gap made by hand
+		cut = minCommonPoints(g.Method, PairedKindNull, "")
+	}
+	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed, cut)
 }
 
 // zero reports whether the gap and both ends of its interval are 0.

@@ -47,6 +47,24 @@ func TestPairedJudgedCutOffs(t *testing.T) {
 			}
 		})
 	}
+	// An omission rate between two extents of one model is 0 in every
+	// resample: judged from 10 common test points; between two models,
+	// or another score between extents, from 30.
+	for _, c := range []struct {
+		kind   PairKind
+		metric string
+		judged bool
+	}{
+		{PairedKindExtent, "omission_minimum_training_presence", true},
+		{PairedKindModel, "omission_minimum_training_presence", false},
+		{PairedKindNull, "omission_minimum_training_presence", false},
+		{PairedKindExtent, "partial_roc_e0.05", false},
+	} {
+		p := Paired{Kind: c.kind, Metric: c.metric, Method: "paired_resamples", Defined: true, CommonPoints: 10, Resamples: 100}
+		if p.Judged() != c.judged {
+			t.Errorf("%s %s on 10 points: judged %v (%s)", c.kind, c.metric, p.Judged(), p.NotJudgedReason())
+		}
+	}
 }
 
 // fewResamples returns the sample run with a null's partial ROC and AUC
@@ -391,9 +409,11 @@ func TestHeadlineFewResamplesNamesModels(t *testing.T) {
 // partial ROC ratio, omission, Boyce) on fewer than MinResampledPoints
 // common test points is not judged, while an AUC difference from the
 // placements on as many is. The sample holds 20 to 22 test points per
-// extent: its AUC verdicts stand, its partial ROC ratio's and omission
-// rates' are undetermined, and every sentence, the headline, the methods
-// and the page name the cut-off of 30.
+// extent: its AUC verdicts stand, its partial ROC ratio's are
+// undetermined, no model comparison is made by the partial ROC ratio or
+// an omission rate, and every sentence, the headline and the page name
+// the cut-off of 30; an omission rate between two extents of one model,
+// 0 in every resample, keeps the cut-off of 10.
 func TestResampledPointsCutOff(t *testing.T) {
 	r := withNull(t)
 	r.Paired = append(r.Paired, nullPaired(r)...)
@@ -409,7 +429,14 @@ func TestResampledPointsCutOff(t *testing.T) {
 			if mv.Verdict != JudgementSensitive {
 				t.Errorf("AUC of %s on 20 to 22 points: %s", mv.Model, mv.Sentence)
 			}
-		case mv.Metric == key || strings.HasPrefix(mv.Metric, "omission_"):
+		case strings.HasPrefix(mv.Metric, "omission_"):
+			// Between extents of one model an omission rate differs by 0
+			// in every resample (one threshold per model): the cut-off of
+			// 10 holds, and the sample's are robust.
+			if mv.Verdict != JudgementRobust {
+				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
+			}
+		case mv.Metric == key:
 			if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "Not judged, on fewer than 30 common test points (our cut-off):") {
 				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
 			}
@@ -420,10 +447,17 @@ func TestResampledPointsCutOff(t *testing.T) {
 			}
 		}
 	}
+	ranked := 0
 	for _, rk := range s.Rankings {
-		if rk.Metric == key && (rk.Extents != 0 || !strings.Contains(rk.Sentence, "share fewer than 30 test points (our cut-off)")) {
-			t.Errorf("ranking: %+v", rk)
+		if rk.Metric == key || strings.HasPrefix(rk.Metric, "omission_") {
+			ranked++
+			if rk.Extents != 0 || !strings.Contains(rk.Sentence, "share fewer than 30 test points (our cut-off)") {
+				t.Errorf("ranking: %+v", rk)
+			}
 		}
+	}
+	if ranked == 0 {
+		t.Error("no ranking by the partial ROC ratio or an omission rate")
 	}
 	found := false
 	for _, an := range s.AboveNull {
@@ -445,7 +479,7 @@ func TestResampledPointsCutOff(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	checkWords(t, "page", string(page), []string{"(30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer)"}, nil)
+	checkWords(t, "page", string(page), []string{"(30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample)"}, nil)
 	// One model's differences lifted to 30 points: the headline names the
 	// others.
 	for i := range r.Paired {

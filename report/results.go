@@ -500,7 +500,7 @@ func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 // is said first: it is the reason whatever the resamples.
 func (p *Paired) notJudgedKind() string {
 	switch {
-	case p.CommonPoints < minCommonPoints(p.Method):
+	case p.CommonPoints < p.minPoints():
 		return positionTooFew
 	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
 		return positionTooFewResamples
@@ -537,27 +537,36 @@ func (p *Paired) NotJudgedReason() string {
 	if !p.Defined {
 		return ""
 	}
-	return notJudgedReason(p.notJudgedKind(), p.Method, p.CommonPoints, p.Formed())
+	return notJudgedReason(p.notJudgedKind(), p.CommonPoints, p.Formed(), p.minPoints())
 }
 
-// minCommonPoints is the fewest common test points a paired difference
-// of method is judged on: MinResampledPoints for a percentile interval of
-// the paired resamples, MinPairedPoints for the others.
-func minCommonPoints(method string) int {
-	if method == "paired_resamples" {
+// minPoints is the fewest common test points p is judged on
+// (minCommonPoints).
+func (p *Paired) minPoints() int { return minCommonPoints(p.Method, p.Kind, p.Metric) }
+
+// minCommonPoints is the fewest common test points a paired difference of
+// method, kind and metric (a MetricInfo key) is judged on:
+// MinResampledPoints for a percentile interval of the paired resamples,
+// MinPairedPoints for the others, and for an omission rate between two
+// extents of one model, whose difference is 0 in every resample (both
+// sides compare each common test point with the model's same threshold,
+// fixed from its training points whatever the extent), so that no
+// interval is to be calibrated.
+func minCommonPoints(method string, kind PairKind, metric string) int {
+	if method == "paired_resamples" && !(kind == PairedKindExtent && strings.HasPrefix(metric, "omission_")) {
 		return MinResampledPoints
 	}
 	return MinPairedPoints
 }
 
 // notJudgedReason words a not-judged kind (positionTooFew,
-// positionTooFewResamples, positionNotCalibrated) for a difference of
-// method on common test points from formed resamples; "" for any other
-// kind.
-func notJudgedReason(kind, method string, common, formed int) string {
+// positionTooFewResamples, positionNotCalibrated) for a difference on
+// common test points from formed resamples, judged from cut common test
+// points on; "" for any other kind.
+func notJudgedReason(kind string, common, formed, cut int) string {
 	switch kind {
 	case positionTooFew:
-		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, minCommonPoints(method))
+		return fmt.Sprintf("too few common test points: %d, our cut-off %d", common, cut)
 	case positionTooFewResamples:
 		return fmt.Sprintf("too few resamples: %d formed, our cut-off %d", formed, MinPercentileResamples)
 	case positionNotCalibrated:

@@ -42,7 +42,9 @@ const (
 	// true difference ("inside" with the truth beyond it, or "outside"
 	// with it within); on 30, at most 1.9% and 0.1%, within the 2.5% a
 	// correct 95% interval allows; the placements' t interval of the AUC
-	// errs so below 1.5% of the time from 10). Its position is "too_few",
+	// errs so below 1.5% of the time from 10). An omission rate between
+	// two extents of one model keeps MinPairedPoints: it is 0 in every
+	// resample (minCommonPoints). Its position is "too_few",
 	// as below MinPairedPoints, and its
 	// reason names this cut-off.
 	MinResampledPoints = 30
@@ -152,16 +154,17 @@ const (
 
 // MetricInfo names one analysed metric.
 // minCommonPoints is the fewest common test points a paired difference of
-// the metric is judged on (the function of the same name, by the method
-// its differences are formed with: the placements for the AUCs, the
-// paired resamples for the partial ROC ratio, omission rates and Boyce
-// index, exact for the predicted area).
-func (m MetricInfo) minCommonPoints() int {
+// the metric and kind is judged on (the function of the same name, by the
+// method its differences are formed with: the placements for the AUCs,
+// the paired resamples for the partial ROC ratio, omission rates and
+// Boyce index, exact for the predicted area).
+func (m MetricInfo) minCommonPoints(kind PairKind) int {
+	method := ""
 	switch m.Kind {
 	case MetricPartialROC, MetricOmission, MetricBoyce:
-		return minCommonPoints("paired_resamples")
+		method = "paired_resamples"
 	}
-	return minCommonPoints("")
+	return minCommonPoints(method, kind, m.Key)
 }
 
 type MetricInfo struct {
@@ -281,6 +284,9 @@ type ExtentDifference struct {
 	// NotJudged says why a difference is not judged (Paired.NotJudgedReason);
 	// absent when it is judged.
 	NotJudged string `json:"not_judged_reason,omitempty"`
+	// minPoints is the fewest common test points it is judged on
+	// (minCommonPoints).
+	minPoints int
 	// nFormed is the number of resamples that formed a paired_resamples
 	// difference (Paired.Formed), for the sentences.
 	nFormed int

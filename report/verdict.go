@@ -64,7 +64,16 @@ func (d ExtentDifference) why() string {
 	if d.NotJudged != "" || !d.notJudged() {
 		return d.NotJudged
 	}
-	return notJudgedReason(d.Position, d.Method, d.CommonPoints, d.nFormed)
+	return notJudgedReason(d.Position, d.CommonPoints, d.nFormed, d.cut())
+}
+
+// cut is the fewest common test points d is judged on: minPoints, or for
+// a difference made by hand without it, minCommonPoints of its method.
+func (d ExtentDifference) cut() int {
+	if d.minPoints > 0 {
+		return d.minPoints
+	}
+	return minCommonPoints(d.Method, PairedKindExtent, "")
 }
 
 // position places the interval lo..hi against -tol..+tol.
@@ -81,7 +90,7 @@ func position(lo, hi, tol float64) string {
 // difference fills one ExtentDifference from a paired record (or exactly,
 // for the predicted area, which no test point moves).
 func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, otherExt string) ExtentDifference {
-	d := ExtentDifference{Extent: ext}
+	d := ExtentDifference{Extent: ext, minPoints: m.minCommonPoints(kind)}
 	sc := a.score(model, ext)
 	if sc != nil {
 		d.TestPoints = sc.TestPoints
@@ -105,7 +114,7 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 	if p == nil {
 		return d
 	}
-	d.CommonPoints, d.Method, d.nFormed = p.CommonPoints, p.Method, p.Formed()
+	d.CommonPoints, d.Method, d.nFormed, d.minPoints = p.CommonPoints, p.Method, p.Formed(), p.minPoints()
 	if !p.Defined {
 		return d
 	}
@@ -384,7 +393,7 @@ func tooFewText(ds []ExtentDifference) string {
 		case !d.Defined:
 		case d.Position == positionTooFew:
 			few = append(few, fmt.Sprintf("%s (%d)", d.Extent, d.CommonPoints))
-			cut = minCommonPoints(d.Method)
+			cut = d.cut()
 		case d.Position == positionTooFewResamples:
 			fewB = append(fewB, fmt.Sprintf("%s (%d)", d.Extent, d.nFormed))
 			fewBIDs = append(fewBIDs, d.Extent)
@@ -580,19 +589,19 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			tooFew, tooFewB := notJudgedCounts(r.Diffs)
 			switch {
 			case r.Extents == 0 && tooFew > 0 && tooFewB == 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, m.minCommonPoints())
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: where both are defined they share fewer than %d test points (our cut-off).", upperFirst(m.Label), ma, mb, m.minCommonPoints(PairedKindModel))
 			case r.Extents == 0 && tooFewB > 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB, m.minCommonPoints()))
+				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB, m.minCommonPoints(PairedKindModel)))
 			case r.Extents == 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
 			case r.identical():
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
-				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints())
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			default:
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
 					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
-				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints())
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			}
 			out = append(out, r)
 		}

@@ -11,7 +11,8 @@ with numpy/scipy only, every number report.Analyze derives:
     95% interval inside -T..+T -> robust, one wholly outside ->
     extent-sensitive, otherwise undetermined (a difference on fewer common
     test points than 10 from the placements or 30 from the paired
-    resamples is "too_few", not judged); and per metric the summary;
+    resamples, 10 for an omission rate between extents, is "too_few", not
+    judged); and per metric the summary;
   * per metric and pair of models, the extents where one is better beyond
     noise (95% interval excluding 0);
   * the two-way sum-of-squares split of each metric over the models x
@@ -136,8 +137,11 @@ def difference(key, kind_metric, arg, kind, ma, ea, mb, eb):
         return None
     # Not judged on too few common test points (README, our cut-offs): 10
     # for a difference from the placements, 30 for one from the paired
-    # resamples (partial ROC ratio, omission, Boyce index).
-    if p["common_points"] < (30 if p["method"] == "paired_resamples" else 10):
+    # resamples (partial ROC ratio, omission, Boyce index), except 10 for
+    # an omission rate between two extents of one model (0 in every
+    # resample: the model's thresholds do not depend on the extent).
+    resampled = p["method"] == "paired_resamples" and not (kind == "extent" and kind_metric == "omission")
+    if p["common_points"] < (30 if resampled else 10):
         return p["diff"], p["ci_low"], p["ci_high"], "too_few"
     if kind_metric == "boyce":
         # Reported, never judged: the Boyce index's paired percentile
