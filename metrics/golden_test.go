@@ -1,9 +1,7 @@
 package metrics
 
 import (
-	"encoding/csv"
 	"math"
-	"os"
 	"sort"
 	"strconv"
 	"testing"
@@ -258,15 +256,7 @@ func TestQuantileGolden(t *testing.T) {
 // SciPy 1.10's scipy.stats.t.ppf is not used: it differs from both by up
 // to 1e-9 relative.
 func TestT975AgainstR(t *testing.T) {
-	f, err := os.Open(goldenDir + "t975_golden.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readGoldenCSV(t, "t975_golden.csv")
 	if len(rows) < 11 || rows[0][0] != "df" || rows[0][1] != "q" {
 		t.Fatalf("t975_golden.csv: %d rows, header %v; want df,q and at least 10 rows", len(rows), rows[0])
 	}

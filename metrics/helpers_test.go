@@ -35,17 +35,28 @@ func build(t testing.TB, c testCase, fixed []float64, histBins int) (*Layout, *A
 
 const goldenDir = "../testdata/metrics/"
 
-func loadCases(t testing.TB) map[string]testCase {
+// readGoldenCSV returns the rows of the CSV file name of goldenDir, its
+// header first.
+func readGoldenCSV(t testing.TB, name string) [][]string {
 	t.Helper()
-	f, err := os.Open(goldenDir + "cases.csv")
+	f, err := os.Open(goldenDir + name)
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer f.Close()
 	rows, err := csv.NewReader(f).ReadAll()
 	if err != nil {
-		t.Fatal(err)
+		t.Fatalf("%s: %v", name, err)
 	}
+	if len(rows) == 0 {
+		t.Fatalf("%s is empty", name)
+	}
+	return rows
+}
+
+func loadCases(t testing.TB) map[string]testCase {
+	t.Helper()
+	rows := readGoldenCSV(t, "cases.csv")
 	out := map[string]testCase{}
 	for _, r := range rows[1:] {
 		v, err1 := strconv.ParseFloat(r[2], 64)
@@ -131,15 +142,7 @@ type procRow struct {
 
 func loadProc(t testing.TB) map[string][]procRow {
 	t.Helper()
-	f, err := os.Open(goldenDir + "proc_golden.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readGoldenCSV(t, "proc_golden.csv")
 	out := map[string][]procRow{}
 	for _, r := range rows[1:] {
 		e, err1 := strconv.ParseFloat(r[2], 64)

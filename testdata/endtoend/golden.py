@@ -108,12 +108,14 @@ import numpy as np
 from osgeo import gdal, ogr, osr
 from pyproj import Geod, Transformer
 from scipy.spatial import cKDTree
-from scipy.special import betaincinv
 from scipy.stats import binomtest, spearmanr
 from sklearn.metrics import roc_auc_score
 
 gdal.UseExceptions()
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.dont_write_bytecode = True  # no __pycache__ in testdata/
+sys.path.insert(0, os.path.dirname(HERE))  # testdata/, for tquantile
+from tquantile import student_t975  # noqa: E402
 GEOD = Geod(ellps="WGS84")
 
 # ---------------------------------------------------------------- the studies
@@ -952,17 +954,6 @@ def study(spec):
 # cut-off below which a paired difference is reported but not judged
 # (report/sensitivity.go MinPairedPoints).
 TOLERANCE_AUC, MIN_PAIRED_POINTS = 0.02, 10
-
-
-def student_t975(df):
-    """The 0.975 quantile of Student's t with df degrees of freedom (the
-    paired AUC interval's multiplier), from the inverse regularised
-    incomplete beta function: P(|T| > t) = I_x(df/2, 1/2) with x = df /
-    (df + t^2), so t = sqrt(df (1/x - 1)) at I_x = 0.05 (SciPy 1.10's
-    scipy.stats.t.ppf is up to 1e-9 off R's qt; this form agrees with it
-    to about 1e-15 at the df of these studies)."""
-    x = betaincinv(df / 2.0, 0.5, 0.05)
-    return float(math.sqrt(df * (1.0 / x - 1.0)))
 
 
 def paired_difference(sa, sb, key):

@@ -25,15 +25,18 @@ Deterministic: fixed seeds, no clock, sorted keys. Run with /usr/bin/python3
 """
 import json
 import os
+import sys
 
 import numpy as np
 import scipy
 import sklearn
-from scipy.special import betaincinv
 from scipy.stats import binom, spearmanr
 from sklearn.metrics import roc_auc_score
 
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.dont_write_bytecode = True  # no __pycache__ in testdata/
+sys.path.insert(0, os.path.dirname(HERE))  # testdata/, for tquantile
+from tquantile import student_t975  # noqa: E402
 
 
 def hanley_mcneil():
@@ -93,17 +96,6 @@ def placements(vals, w, pres):
     w = np.asarray(w, float)
     tot = w.sum()
     return np.array([(w[vals < p].sum() + w[vals == p].sum() / 2) / tot for p in pres])
-
-
-def student_t975(df):
-    """The 0.975 quantile of Student's t with df degrees of freedom, from
-    the inverse regularised incomplete beta function: P(|T| > t) = I_x(df/2,
-    1/2) with x = df / (df + t^2), so t = sqrt(df (1/x - 1)) at I_x = 0.05.
-    SciPy 1.10's scipy.stats.t.ppf differs from R's qt and from the closed
-    forms at df = 1 and 2 by up to 1e-9 relative; this form agrees with R's
-    qt to about 1e-15 for the df used here (golden.R writes R's values)."""
-    x = betaincinv(df / 2.0, 0.5, 0.05)
-    return float(np.sqrt(df * (1.0 / x - 1.0)))
 
 
 def paired(d):

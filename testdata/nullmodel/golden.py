@@ -40,27 +40,19 @@ Deterministic: fixed seed, no clock, sorted keys. Run with /usr/bin/python3
 import json
 import math
 import os
+import sys
 
 import numpy as np
 from pyproj import Geod
-from scipy.special import betaincinv
 from sklearn.metrics import roc_auc_score
 
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.dont_write_bytecode = True  # no __pycache__ in testdata/
+sys.path.insert(0, os.path.dirname(HERE))  # testdata/, for tquantile
+from tquantile import student_t975  # noqa: E402
 GEOD = Geod(ellps="WGS84")
 
 WEST, NORTH, DEG, W, H = -10.0, 60.0, 0.5, 48, 36
-
-
-def student_t975(df):
-    """The 0.975 quantile of Student's t with df degrees of freedom (the
-    paired AUC interval's multiplier), from the inverse regularised
-    incomplete beta function: P(|T| > t) = I_x(df/2, 1/2) with x = df /
-    (df + t^2), so t = sqrt(df (1/x - 1)) at I_x = 0.05 (SciPy 1.10's
-    scipy.stats.t.ppf is up to 1e-9 off R's qt; this form agrees with it
-    to about 1e-15 at the df of these studies)."""
-    x = betaincinv(df / 2.0, 0.5, 0.05)
-    return float(math.sqrt(df * (1.0 / x - 1.0)))
 
 
 def cell_area_m2(lat1, lat2, dlon_deg):

@@ -44,10 +44,13 @@ import os
 import sys
 
 import numpy as np
-from scipy import special, stats
+from scipy import stats
 from scipy.spatial import Delaunay, cKDTree
 
 HERE = os.path.dirname(os.path.abspath(__file__))
+sys.dont_write_bytecode = True  # no __pycache__ in testdata/
+sys.path.insert(0, os.path.dirname(HERE))  # testdata/, for tquantile
+from tquantile import student_t975  # noqa: E402
 R_EARTH = 6371.0088  # km, IUGG mean Earth radius
 rng = np.random.default_rng(20240611)
 
@@ -314,17 +317,6 @@ def boyce(pv, bv, bw):
 
 def MKEY(name):
     return "omission_" + name + ("_%g" % FIXED[0] if name == "fixed" else "")
-
-
-def student_t975(df):
-    """The 0.975 quantile of Student's t with df degrees of freedom (the
-    paired AUC interval's multiplier), from the inverse regularised
-    incomplete beta function: P(|T| > t) = I_x(df/2, 1/2) with x = df /
-    (df + t^2), so t = sqrt(df (1/x - 1)) at I_x = 0.05 (SciPy 1.10's
-    scipy.stats.t.ppf is up to 1e-9 off R's qt; this form agrees with it
-    to about 1e-15 at the df of these studies)."""
-    x = special.betaincinv(df / 2.0, 0.5, 0.05)
-    return float(math.sqrt(df * (1.0 / x - 1.0)))
 
 
 def r12(v):
