@@ -22,7 +22,11 @@ import (
 //     nodata value;
 //   - one file given as two models (they score alike);
 //   - occurrences whose test points all lie outside the base region (the
-//     base extent, the study's own, goes unscored).
+//     base extent, the study's own, goes unscored);
+//   - a second model without data on some cells of the extents (where the
+//     first model has data): it is scored there against a smaller
+//     background, so its scores and its differences from the first model
+//     compare unlike backgrounds.
 //
 // The plain study warns about none of these.
 func TestSuspectInputsWarned(t *testing.T) {
@@ -86,7 +90,7 @@ func TestSuspectInputsWarned(t *testing.T) {
 			}
 		}
 	}
-	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84"}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84", "has no data on cells where the first model"}
 
 	t.Run("plain study", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
@@ -136,6 +140,23 @@ func TestSuspectInputsWarned(t *testing.T) {
 	t.Run("one file as two models", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)
 		says(t, se, ws, suspect[1], "model again", "as model m")
+	})
+	t.Run("a second model without data on part of the extents", func(t *testing.T) {
+		// The same values, with no data in the raster's south-west corner
+		// (10 to 12 E, 40 to 41 N), which holds no point and lies outside
+		// the region and its 60 km buffer but inside whole_raster.
+		f := &badFixture{smallStudy: s}
+		holes := f.rasterWith(t, "holes.tif", s.gt, wgs84WKT, func(i int) float64 {
+			if r, c := i/s.w, i%s.w; r >= 28 && c < 8 {
+				return math.NaN()
+			}
+			return s.vals[i]
+		})
+		se, ws := run(t, "--model", "m="+s.model, "--model", "holes="+holes, "--occurrences", s.occ)
+		says(t, se, ws, suspect[4], "model holes", "(m)", "whole_raster", "--model")
+		if strings.Contains(strings.Join(ws, "\n"), "model m has no data on cells") {
+			t.Errorf("the first model is warned: %q", ws)
+		}
 	})
 	t.Run("no test point in the base region", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)
