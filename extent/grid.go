@@ -433,8 +433,8 @@ func (g *Grid) Centre(col, row int) (x, y float64) {
 // west or north edge belongs to that cell. ok is false outside the grid.
 func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 	gt := g.GeoTransform
-	fc := (x - gt[0]) / gt[1]
-	fr := (y - gt[3]) / gt[5]
+	fc := snapEdge((x - gt[0]) / gt[1])
+	fr := snapEdge((y - gt[3]) / gt[5])
 	if g.Geographic && y == -90 && fr >= float64(g.Height) && math.Abs(gt[3]+float64(g.Height)*gt[5]+90) < 1e-9 {
 		// The South Pole on a grid that reaches it: nothing lies south of
 		// the bottom edge there, so it is in the last row (as the North
@@ -445,6 +445,27 @@ func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 		return 0, 0, false
 	}
 	return int(fc), int(fr), true
+}
+
+// edgeSnap is how near a whole number of cells (in cells) a point's
+// position is taken to lie on that cell edge: a billionth of a cell, a
+// tenth of a millimetre on a grid of 0.1 degrees, far below any
+// coordinate's precision and far above the rounding of the division.
+const edgeSnap = 1e-9
+
+// snapEdge rounds f, a position in cells from the grid's origin, to the
+// nearest whole number when it lies within edgeSnap of it. A coordinate
+// written in decimals on a cell edge is not one in binary: -137.9 on a
+// grid of 0.1 degrees from -150 comes out as 120.99999999999994 cells,
+// and -40.1 from -28 as 121.00000000000001, so a plain floor put 120 of
+// the 300 column edges and 96 of the 240 row edges of such a grid into the
+// cell west or north of the edge rather than the one whose west or north
+// edge it is (and a point on the east edge inside the raster).
+func snapEdge(f float64) float64 {
+	if r := math.Round(f); math.Abs(f-r) < edgeSnap {
+		return r
+	}
+	return f
 }
 
 // Bounds returns west, south, east, north in grid CRS.
