@@ -1,8 +1,11 @@
 package extent
 
 import (
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/paulmach/orb"
 )
@@ -58,5 +61,39 @@ func TestRegionBeyondTheRaster(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestProjectedRegionFarVertex: a region in EPSG:3857 with one vertex at
+// an easting of 1e20 metres (a typo) kept the run reprojecting it onto a
+// latitude-longitude raster for more than 2 minutes (PROJ takes time in
+// proportion to the coordinate). A vertex of a projected layer more than
+// 1e12 units from its CRS's origin is refused like a latitude beyond a
+// pole, naming the feature; the same region without it is read.
+func TestProjectedRegionFarVertex(t *testing.T) {
+	Register()
+	g, err := NewGrid(300, 240, [6]float64{-150, 0.1, 0, -28, 0, -0.1}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	dir := t.TempDir()
+	write := func(name, far string) string {
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::3857"}},"features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[-15500000,-4500000],[-15000000,-4500000],[`+far+`,-5000000],[-15500000,-5000000],[-15500000,-4500000]]]}}]}`), 0o644)
+		return p
+	}
+	if _, _, err := ReadShape(write("near.geojson", "-15000000"), g); err != nil {
+		t.Fatalf("a region without the far vertex: %v", err)
+	}
+	done := make(chan error, 1)
+	go func() { _, _, err := ReadShape(write("far.geojson", "1e20"), g); done <- err }()
+	select {
+	case err := <-done:
+		if err == nil || !strings.Contains(err.Error(), "feature 1 has a vertex at 1e+20, more than 1e+12 units from the origin of the layer's CRS") {
+			t.Errorf("a vertex at 1e20: %v", err)
+		}
+	case <-time.After(time.Minute):
+		t.Fatal("a vertex at 1e20: not refused within a minute")
 	}
 }
