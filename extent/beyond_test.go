@@ -97,3 +97,32 @@ func TestProjectedRegionFarVertex(t *testing.T) {
 		t.Fatal("a vertex at 1e20: not refused within a minute")
 	}
 }
+
+// TestProjectedGridFarCorner: a raster in EPSG:3857 whose corners lie at
+// 1e20 (a broken georeferencing) kept the run computing its cell areas
+// for more than a minute. Such a grid is refused at once; one reaching
+// 2e7 m (the whole Mercator map) is made.
+func TestProjectedGridFarCorner(t *testing.T) {
+	g, err := NewGrid(300, 240, [6]float64{-2e7, 2e7 / 150, 0, 2e7, 0, -2e7 / 120}, "EPSG:3857")
+	if err != nil {
+		t.Fatalf("the whole Mercator map: %v", err)
+	}
+	g.Close()
+	done := make(chan error, 1)
+	go func() {
+		g, err := NewGrid(300, 240, [6]float64{1e20, 2e20 / 300, 0, 1e20, 0, -2e20 / 240}, "EPSG:3857")
+		if err == nil {
+			g.RowAreas(0, nil)
+			g.Close()
+		}
+		done <- err
+	}()
+	select {
+	case err := <-done:
+		if err == nil || !strings.Contains(err.Error(), "the raster reaches 3e+20 units from the origin of its CRS, more than 1e+12") {
+			t.Errorf("corners at 1e20: %v", err)
+		}
+	case <-time.After(time.Minute):
+		t.Fatal("corners at 1e20: not refused within a minute")
+	}
+}

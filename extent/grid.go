@@ -280,6 +280,13 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
 		return g, nil
 	}
+	// No place on the Earth lies this far from a projected CRS's origin,
+	// and PROJ takes time in proportion to a coordinate's size to bring it
+	// back to the globe: a raster whose corner lay at 1e20 in EPSG:3857
+	// kept the run computing its cell areas for more than a minute.
+	if far := math.Max(math.Max(math.Abs(gt[0]), math.Abs(gt[0]+float64(width)*gt[1])), math.Max(math.Abs(gt[3]), math.Abs(gt[3]+float64(height)*gt[5]))); far > MaxProjectedCoordinate {
+		return nil, fmt.Errorf("extent: the raster reaches %g units from the origin of its CRS, more than %g, beyond any place on the Earth; the raster's georeferencing is broken (check it with gdalinfo)", far, MaxProjectedCoordinate)
+	}
 	if g.toLL, err = newTransforms(sr, wgs); err != nil {
 		return nil, notOnEarth(wkt, err)
 	}

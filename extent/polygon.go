@@ -536,12 +536,13 @@ func noGeometry(g *godal.Geometry) bool {
 	return g.Empty()
 }
 
-// maxProjected bounds the coordinates of a projected layer (in its CRS's
-// unit), as inputs.MaxProjected bounds the occurrences'.
-const maxProjected = 1e12
+// MaxProjectedCoordinate bounds the coordinates of a projected raster or
+// layer (in its CRS's unit), as inputs.MaxProjected bounds the
+// occurrences': the Earth's circumference is 4e7 m, 4e10 mm.
+const MaxProjectedCoordinate = 1e12
 
 // coordinateProblem says what is wrong with the coordinates of g, or "":
-// not finite, for a projected layer one beyond maxProjected, or for a
+// not finite, for a projected layer one beyond MaxProjectedCoordinate, or for a
 // latitude-longitude layer a latitude beyond the poles or a longitude
 // beyond one and a half turns.
 func coordinateProblem(g *godal.Geometry, geographic bool) string {
@@ -561,8 +562,8 @@ func coordinateProblem(g *godal.Geometry, geographic bool) string {
 		// globe: a vertex at an easting of 1e20 in EPSG:3857 kept the run
 		// reprojecting the region for more than 2 minutes.
 		for _, v := range b {
-			if math.Abs(v) > maxProjected {
-				return fmt.Sprintf("has a vertex at %g, more than %g units from the origin of the layer's CRS, beyond any place on the Earth", v, maxProjected)
+			if math.Abs(v) > MaxProjectedCoordinate {
+				return fmt.Sprintf("has a vertex at %g, more than %g units from the origin of the layer's CRS, beyond any place on the Earth", v, MaxProjectedCoordinate)
 			}
 		}
 		return ""
