@@ -72,6 +72,15 @@ func (v *validator) header(r *Results) {
 	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
 		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
 	}
+	// A run scores north-up grids only (no rotation, cells of positive
+	// width and negative height); the maps are drawn from these numbers.
+	gt := r.Grid.GeoTransform
+	for i, x := range gt {
+		v.finite(fmt.Sprintf("grid.geotransform[%d]", i), x)
+	}
+	if gt[2] != 0 || gt[4] != 0 || !(gt[1] > 0) || !(gt[5] < 0) {
+		v.fail("grid.geotransform", "%v is not a north-up grid (a run writes no rotation, a positive cell width and a negative cell height)", gt)
+	}
 	pc := r.PointCounts
 	for _, c := range []struct {
 		name string

@@ -104,6 +104,11 @@ func TestValidateRefuses(t *testing.T) {
 		// entry removed or given another E dropped a row or added one for
 		// an E the run never scored. A run refuses such settings and
 		// writes one entry per E of its settings on every scored extent.
+		// The maps of a grid edited to a rotation or a cell of no width
+		// were drawn without a word; a run writes north-up grids only.
+		{"rotated grid", func(r *Results) { r.Grid.GeoTransform[2] = 0.5 }, "grid.geotransform: ["},
+		{"cell of no width", func(r *Results) { r.Grid.GeoTransform[1] = 0 }, "is not a north-up grid"},
+		{"south-up grid", func(r *Results) { r.Grid.GeoTransform[5] = -r.Grid.GeoTransform[5] }, "is not a north-up grid"},
 		{"tolerance of -1", func(r *Results) { r.Settings.ToleranceAUC = -1 }, "settings.tolerance_auc: -1 is not a positive number"},
 		{"tolerance of 0", func(r *Results) { r.Settings.ToleranceBoyce = 0 }, "settings.tolerance_boyce: 0 is not a positive number"},
 		{"infinite tolerance", func(r *Results) { r.Settings.TolerancePartialROC = math.Inf(1) }, "settings.tolerance_partial_roc: +Inf"},
