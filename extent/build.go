@@ -59,6 +59,9 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 		return nil, fmt.Errorf("region: %w", err)
 	}
 	f.Base = base
+	if w := beyondRaster(g, base.Grid, spec.Region); w != "" {
+		f.Warnings = append(f.Warnings, w)
+	}
 	baseK, err := b.add(Member{ID: vocab.BaseID, Kind: vocab.KindBase, Params: "file=" + baseName(spec.Region)})
 	if err != nil {
 		return nil, err
@@ -110,6 +113,59 @@ func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Famil
 	f.Chains[chainRegion] = append(f.Chains[chainRegion], len(f.Members)-1)
 	b.finish(trainCells, testCells)
 	return f, nil
+}
+
+// beyondRaster words a warning when the base region mp (in the grid's CRS)
+// reaches more than half a cell beyond an edge of the raster, naming the
+// edges: the extents hold only its cells on the raster, so the base extent
+// is smaller than the region given (its area, and "the study region as
+// given" in the methods text, are those of its part on the raster), and
+// the shrunk buffers shrink from the region's own boundary, not from the
+// raster's edge. A polygon's bounds are reached at its vertices, so a
+// region beyond these bounds has a part beyond the raster. A geographic
+// grid that spans the globe has no east or west edge to reach beyond.
+func beyondRaster(g *Grid, mp orb.MultiPolygon, path string) string {
+	if len(mp) == 0 {
+		return ""
+	}
+	bb := mp.Bound()
+	r := g.Bounds() // west, south, east, north
+	hx, hy := math.Abs(g.GeoTransform[1])/2, math.Abs(g.GeoTransform[5])/2
+	global := g.Geographic && float64(g.Width)*math.Abs(g.GeoTransform[1]) >= 360-1e-9
+	var sides []string
+	for _, c := range []struct {
+		name        string
+		over        bool
+		region, edg float64
+	}{
+		{"west", !global && bb.Min[0] < r[0]-hx, bb.Min[0], r[0]},
+		{"east", !global && bb.Max[0] > r[2]+hx, bb.Max[0], r[2]},
+		{"south", bb.Min[1] < r[1]-hy, bb.Min[1], r[1]},
+		{"north", bb.Max[1] > r[3]+hy, bb.Max[1], r[3]},
+	} {
+		if c.over {
+			sides = append(sides, fmt.Sprintf("%s (to %s, the raster's edge is at %s)", c.name, strconv.FormatFloat(c.region, 'g', 8, 64), strconv.FormatFloat(c.edg, 'g', 8, 64)))
+		}
+	}
+	if len(sides) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("the base region (%s) reaches beyond the raster to the %s, in the raster's CRS: the extents hold only its cells on the raster, so base is smaller than the region given and the shrunk region buffers are not shrunk from the raster's edge; give models that cover the whole region, or clip the region to the raster (e.g. ogr2ogr -clipdst %s %s %s %s CLIPPED.gpkg %s, with the raster's bounds in the region's CRS if it is another)",
+		baseName(path), joinSides(sides), fmtBound(r[0]), fmtBound(r[1]), fmtBound(r[2]), fmtBound(r[3]), path)
+}
+
+func fmtBound(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+
+// joinSides joins "a", "a and b", "a, b and c".
+func joinSides(s []string) string {
+	if len(s) == 1 {
+		return s[0]
+	}
+	out := s[0]
+	for _, x := range s[1 : len(s)-1] {
+		out += ", " + x
+	}
+	return out + " and " + s[len(s)-1]
 }
 
 func baseName(p string) string {

@@ -1,6 +1,7 @@
 package extent
 
 import (
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -69,5 +70,67 @@ func TestRegionBuffersOfTheWholeGlobe(t *testing.T) {
 	}
 	if !warned {
 		t.Errorf("no warning about the whole globe: %q", f.Warnings)
+	}
+}
+
+// TestCellOfDecimalEdges: a point written in decimals exactly on a cell
+// edge belongs to the cell whose west or north edge it is, as the README
+// says, on grids whose cell size has no exact binary form (0.1 and 0.05
+// degrees). The expected cells are the decimal positions' whole numbers
+// of cells, (x - x0) / dx, computed here with integers (tenths and
+// twentieths of a degree), not in floating point. A plain floor of the
+// floating-point division put 120 of the 300 column edges of the 0.1
+// degree grid into the cell west of the edge.
+func TestCellOfDecimalEdges(t *testing.T) {
+	for _, c := range []struct {
+		name  string
+		w, h  int
+		gt    [6]float64
+		steps int // cells per degree
+		x0    int // origin in degrees
+		y0    int
+	}{
+		{"0.1 degree", 300, 240, [6]float64{-150, 0.1, 0, -28, 0, -0.1}, 10, -150, -28},
+		{"0.05 degree", 720, 360, [6]float64{-180, 0.05, 0, 90, 0, -0.05}, 20, -180, 90},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			g, err := NewGrid(c.w, c.h, c.gt, "EPSG:4326")
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			// The point (x0 + k/steps, y0 - k/steps) as a CSV writes it:
+			// its decimal text, parsed.
+			deg := func(origin, k, sign int) float64 {
+				v, err := strconv.ParseFloat(strconv.FormatFloat(float64(origin*c.steps+sign*k)/float64(c.steps), 'f', 2, 64), 64)
+				if err != nil {
+					t.Fatal(err)
+				}
+				return v
+			}
+			wrongCol, wrongRow := 0, 0
+			for k := 0; k < c.w; k++ {
+				if col, _, ok := g.CellOf(deg(c.x0, k, 1), deg(c.y0, 0, -1)); !ok || col != k {
+					wrongCol++
+				}
+			}
+			for k := 0; k < c.h; k++ {
+				if _, row, ok := g.CellOf(deg(c.x0, 0, 1), deg(c.y0, k, -1)); !ok || row != k {
+					wrongRow++
+				}
+			}
+			if wrongCol > 0 || wrongRow > 0 {
+				t.Errorf("%d points on a column edge and %d on a row edge went to the neighbouring cell", wrongCol, wrongRow)
+			}
+			// The outer east and south edges are outside.
+			if _, _, ok := g.CellOf(deg(c.x0, c.w, 1), deg(c.y0, 0, -1)); ok {
+				t.Error("a point on the east edge is inside the grid")
+			}
+			if c.y0-c.h/c.steps > -90 {
+				if _, _, ok := g.CellOf(deg(c.x0, 0, 1), deg(c.y0, c.h, -1)); ok {
+					t.Error("a point on the south edge is inside the grid")
+				}
+			}
+		})
 	}
 }

@@ -280,6 +280,13 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 		g.AreaMethod = "exact ellipsoidal area of each latitude-longitude cell (WGS84)"
 		return g, nil
 	}
+	// No place on the Earth lies this far from a projected CRS's origin,
+	// and PROJ takes time in proportion to a coordinate's size to bring it
+	// back to the globe: a raster whose corner lay at 1e20 in EPSG:3857
+	// kept the run computing its cell areas for more than a minute.
+	if far := math.Max(math.Max(math.Abs(gt[0]), math.Abs(gt[0]+float64(width)*gt[1])), math.Max(math.Abs(gt[3]), math.Abs(gt[3]+float64(height)*gt[5]))); far > MaxProjectedCoordinate {
+		return nil, fmt.Errorf("extent: the raster reaches %g units from the origin of its CRS, more than %g, beyond any place on the Earth; the raster's georeferencing is broken (check it with gdalinfo)", far, MaxProjectedCoordinate)
+	}
 	if g.toLL, err = newTransforms(sr, wgs); err != nil {
 		return nil, notOnEarth(wkt, err)
 	}
@@ -433,8 +440,8 @@ func (g *Grid) Centre(col, row int) (x, y float64) {
 // west or north edge belongs to that cell. ok is false outside the grid.
 func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 	gt := g.GeoTransform
-	fc := (x - gt[0]) / gt[1]
-	fr := (y - gt[3]) / gt[5]
+	fc := snapEdge((x - gt[0]) / gt[1])
+	fr := snapEdge((y - gt[3]) / gt[5])
 	if g.Geographic && y == -90 && fr >= float64(g.Height) && math.Abs(gt[3]+float64(g.Height)*gt[5]+90) < 1e-9 {
 		// The South Pole on a grid that reaches it: nothing lies south of
 		// the bottom edge there, so it is in the last row (as the North
@@ -445,6 +452,27 @@ func (g *Grid) CellOf(x, y float64) (col, row int, ok bool) {
 		return 0, 0, false
 	}
 	return int(fc), int(fr), true
+}
+
+// edgeSnap is how near a whole number of cells (in cells) a point's
+// position is taken to lie on that cell edge: a billionth of a cell, a
+// tenth of a millimetre on a grid of 0.1 degrees, far below any
+// coordinate's precision and far above the rounding of the division.
+const edgeSnap = 1e-9
+
+// snapEdge rounds f, a position in cells from the grid's origin, to the
+// nearest whole number when it lies within edgeSnap of it. A coordinate
+// written in decimals on a cell edge is not one in binary: -137.9 on a
+// grid of 0.1 degrees from -150 comes out as 120.99999999999994 cells,
+// and -40.1 from -28 as 121.00000000000001, so a plain floor put 120 of
+// the 300 column edges and 96 of the 240 row edges of such a grid into the
+// cell west or north of the edge rather than the one whose west or north
+// edge it is (and a point on the east edge inside the raster).
+func snapEdge(f float64) float64 {
+	if r := math.Round(f); math.Abs(f-r) < edgeSnap {
+		return r
+	}
+	return f
 }
 
 // Bounds returns west, south, east, north in grid CRS.

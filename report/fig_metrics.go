@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -300,15 +301,31 @@ func (pn metricPanel) plot(titleW vg.Length, div float64, unit string) (*plot.Pl
 	return p, nil
 }
 
-// metricsFigure draws one panel per metric: value against extent area.
-func metricsFigure(r *Results) figure {
+// minMetricRow is the least height of a row of metricsFigure's panels
+// (our choice, as the maps' 30 mm): a row squeezed below it leaves a panel
+// little room inside its axes, and a few hundred rows (one panel per
+// fixed threshold) gave the panels a negative height, whose lines the
+// rasterizer then drew millions of points long (a run with 300
+// --thresholds had not finished its report after 10 minutes).
+const minMetricRow = 30 * vg.Millimeter
+
+// metricsLayout is metricsFigure's layout: the panels that fit the page
+// (fitMetricPanels) and those left out, the largest extent area, the
+// figure's width and its legend rows and height.
+type metricsLayout struct {
+	panels, left []metricPanel
+	maxArea      float64
+	w            vg.Length
+	legend       [][]legendItem
+	legendH      vg.Length
+}
+
+func layoutMetrics(r *Results) metricsLayout {
 	s := r.Sensitivity
 	panels, maxArea := metricPanels(r)
-	cols := min(3, max(1, len(panels)))
-	rows := max(1, (len(panels)+cols-1)/cols)
-	f := figure{Name: metricsFigureName, Title: "Each score against extent area", W: twoColumns}
-	if cols == 1 {
-		f.W = oneColumn
+	l := metricsLayout{maxArea: maxArea, w: twoColumns}
+	if len(panels) <= 1 {
+		l.w = oneColumn
 	}
 	var items []legendItem
 	for i, model := range s.ModelNames {
@@ -319,8 +336,61 @@ func metricsFigure(r *Results) figure {
 		ls, gs := nullLineStyle(j)
 		items = append(items, legendItem{ModelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
 	}
-	legend := legendRows(items, f.W)
-	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
+	l.legend = legendRows(items, l.w)
+	l.legendH = vg.Length(len(l.legend))*legendRowHeight + vg.Points(4)
+	l.panels, l.left = fitMetricPanels(panels, max(1, int((maxHeight-l.legendH)/minMetricRow)))
+	return l
+}
+
+// fitMetricPanels keeps at most rows rows of three panels, in their order,
+// and returns them and the panels left out: first the omission rates at
+// fixed thresholds (the last first), then the partial ROC ratios at the E
+// values after the first (the last first), then the last panels.
+func fitMetricPanels(panels []metricPanel, rows int) (kept, left []metricPanel) {
+	room := 3 * rows
+	if len(panels) <= room {
+		return panels, nil
+	}
+	out := make([]bool, len(panels))
+	n := len(panels)
+	drop := func(which func(i int, pn metricPanel) bool) {
+		for i := len(panels) - 1; i >= 0 && n > room; i-- {
+			if !out[i] && which(i, panels[i]) {
+				out[i] = true
+				n--
+			}
+		}
+	}
+	firstE := -1
+	for i, pn := range panels {
+		if pn.m.Kind == MetricPartialROC {
+			firstE = i
+			break
+		}
+	}
+	drop(func(_ int, pn metricPanel) bool {
+		return pn.m.Kind == MetricOmission && pn.m.Threshold == metrics.ThresholdFixed
+	})
+	drop(func(i int, pn metricPanel) bool { return pn.m.Kind == MetricPartialROC && i != firstE })
+	drop(func(int, metricPanel) bool { return true })
+	for i, pn := range panels {
+		if out[i] {
+			left = append(left, pn)
+		} else {
+			kept = append(kept, pn)
+		}
+	}
+	return kept, left
+}
+
+// metricsFigure draws one panel per metric: value against extent area.
+func metricsFigure(r *Results) figure {
+	l := layoutMetrics(r)
+	panels, maxArea := l.panels, l.maxArea
+	cols := min(3, max(1, len(panels)))
+	rows := max(1, (len(panels)+cols-1)/cols)
+	f := figure{Name: metricsFigureName, Title: "Each score against extent area", W: l.w}
+	legend, legendH := l.legend, l.legendH
 	f.H = min(maxHeight, legendH+vg.Length(rows)*52*vg.Millimeter)
 	f.Caption = metricsCaption(r)
 	div, unit := areaAxis(maxArea)
@@ -390,14 +460,21 @@ func undrawnSentence(r *Results) string {
 	if s == nil {
 		return ""
 	}
-	panels, _ := metricPanels(r)
+	l := layoutMetrics(r)
 	drawn := map[string]metricPanel{}
-	for _, pn := range panels {
+	for _, pn := range l.panels {
 		drawn[pn.m.Key] = pn
+	}
+	noRoom := map[string]bool{}
+	for _, pn := range l.left {
+		noRoom[pn.m.Key] = true
 	}
 	var parts, none []string
 	for _, m := range s.Metrics {
 		pn, ok := drawn[m.Key]
+		if noRoom[m.Key] {
+			continue
+		}
 		if !ok {
 			none = append(none, m.Label)
 			continue
@@ -424,7 +501,31 @@ func undrawnSentence(r *Results) string {
 	if len(none) > 0 {
 		out += " No panel (undefined for every model on every extent): " + joinList(none) + "."
 	}
+	if len(l.left) > 0 {
+		out += fmt.Sprintf(" No room on the page for %d more panel%s (%s): their values are in the tables and scores.csv.", len(l.left), Plural(len(l.left)), leftPanels(l.left))
+	}
 	return out
+}
+
+// leftPanels names the panels left out for room: the omission rates at
+// fixed thresholds by their count and range, the others by label.
+func leftPanels(left []metricPanel) string {
+	var names []string
+	var fixed []float64
+	for _, pn := range left {
+		if pn.m.Kind == MetricOmission && pn.m.Threshold == metrics.ThresholdFixed {
+			fixed = append(fixed, pn.m.ThresholdValue)
+			continue
+		}
+		names = append(names, pn.m.Label)
+	}
+	switch {
+	case len(fixed) == 1:
+		names = append(names, "omission at the fixed threshold "+fmtG(fixed[0]))
+	case len(fixed) > 1:
+		names = append(names, fmt.Sprintf("omission at %d fixed thresholds from %s to %s", len(fixed), fmtG(slices.Min(fixed)), fmtG(slices.Max(fixed))))
+	}
+	return joinList(names)
 }
 
 func metricsCaption(r *Results) string {

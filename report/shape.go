@@ -241,7 +241,13 @@ func (w *shapeWalker) walk(t reflect.Type, depth int) (json.Token, error) {
 				return nil, fmt.Errorf("%s: %s is out of range", shapePath(w.path()), cutShape(string(v)))
 			}
 		case "a whole number":
-			if _, err := strconv.ParseInt(string(v), 10, 64); err != nil {
+			// The seed is a uint64: a run takes up to 2^64 - 1, beyond
+			// an int64.
+			parse := func(s string) error { _, err := strconv.ParseInt(s, 10, 64); return err }
+			if k := t.Kind(); k >= reflect.Uint && k <= reflect.Uint64 {
+				parse = func(s string) error { _, err := strconv.ParseUint(s, 10, 64); return err }
+			}
+			if err := parse(string(v)); err != nil {
 				return nil, fmt.Errorf("%s holds %s; a run writes a whole number there", shapePath(w.path()), cutShape(string(v)))
 			}
 		default:

@@ -2,6 +2,7 @@ package report
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -61,6 +62,43 @@ func TestCheckShape(t *testing.T) {
 		}
 		if IsTopLevelShapeError(err) != c.top {
 			t.Errorf("%s: top level %v, want %v (%v)", c.name, !c.top, c.top, err)
+		}
+	}
+}
+
+// TestLargestSeed: a run takes --seed up to 2^64 - 1 and writes it in
+// results.json, whose seed is a uint64; the shape check parsed whole
+// numbers as int64, so `areasweep report` refused the run's own file
+// ("seed holds 18446744073709551615; a run writes a whole number there").
+// The largest seed passes; one past it, a negative seed and a fraction are
+// still refused.
+func TestLargestSeed(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	withSeed := func(seed string) []byte {
+		var top map[string]json.RawMessage
+		if err := json.Unmarshal(data, &top); err != nil {
+			t.Fatal(err)
+		}
+		top["seed"] = json.RawMessage(seed)
+		b, err := json.Marshal(top)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	r, err := Decode("results.json", withSeed("18446744073709551615"))
+	if err != nil {
+		t.Fatalf("seed 2^64 - 1: %v", err)
+	}
+	if r.Seed != math.MaxUint64 {
+		t.Errorf("seed %d, want 2^64 - 1", r.Seed)
+	}
+	for _, seed := range []string{"18446744073709551616", "-1", "1.5"} {
+		if _, err := Decode("results.json", withSeed(seed)); err == nil || !strings.Contains(err.Error(), "seed") {
+			t.Errorf("seed %s: %v, want it refused naming seed", seed, err)
 		}
 	}
 }

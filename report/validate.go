@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"regexp"
+	"slices"
+	"strings"
 
 	"areasweep/extent/vocab"
 )
@@ -69,6 +71,15 @@ func (v *validator) header(r *Results) {
 	v.settings(r.Settings)
 	if r.Grid.Width <= 0 || r.Grid.Height <= 0 {
 		v.fail("grid", "size %dx%d is not positive", r.Grid.Width, r.Grid.Height)
+	}
+	// A run scores north-up grids only (no rotation, cells of positive
+	// width and negative height); the maps are drawn from these numbers.
+	gt := r.Grid.GeoTransform
+	for i, x := range gt {
+		v.finite(fmt.Sprintf("grid.geotransform[%d]", i), x)
+	}
+	if gt[2] != 0 || gt[4] != 0 || !(gt[1] > 0) || !(gt[5] < 0) {
+		v.fail("grid.geotransform", "%v is not a north-up grid (a run writes no rotation, a positive cell width and a negative cell height)", gt)
 	}
 	pc := r.PointCounts
 	for _, c := range []struct {
@@ -305,6 +316,17 @@ type validator struct {
 	// models and extents are the names listed so far, for the records
 	// that refer to them (ref).
 	models, extents map[string]bool
+	// E are the settings' E values, which every scored score holds.
+	E []float64
+}
+
+// partialEs lists the E of each partial ROC entry.
+func partialEs(ps []PartialROC) []float64 {
+	es := make([]float64, len(ps))
+	for i, p := range ps {
+		es[i] = p.E
+	}
+	return es
 }
 
 func (v *validator) fail(at, format string, args ...any) {
@@ -380,9 +402,30 @@ func (v *validator) nonNegInt(at string, x int64) {
 }
 
 func (v *validator) settings(s Settings) {
+	// A run scores at least one E, each once (run refuses --e empty or
+	// with a value twice); the report would drop partial ROC from its
+	// verdicts, or judge one E twice.
+	if len(s.E) == 0 {
+		v.fail("settings.e", "the list is empty; a run lists every E it scored (at least one)")
+	}
 	for i, e := range s.E {
 		if !(e > 0 && e < 1) {
 			v.fail(fmt.Sprintf("settings.e[%d]", i), "%v is outside (0, 1)", e)
+		}
+		if slices.Contains(s.E[:i], e) {
+			v.fail(fmt.Sprintf("settings.e[%d]", i), "%v is given twice; a run scores each E once", e)
+		}
+	}
+	v.E = s.E
+	// The verdicts are recomputed against these: a tolerance of 0 or
+	// below (one a run refuses) would turn them upside down ("against the
+	// tolerance of ±-1").
+	for _, t := range []struct {
+		name string
+		x    float64
+	}{{"tolerance_auc", s.ToleranceAUC}, {"tolerance_partial_roc", s.TolerancePartialROC}, {"tolerance_omission", s.ToleranceOmission}, {"tolerance_boyce", s.ToleranceBoyce}} {
+		if !(t.x > 0) || math.IsInf(t.x, 0) {
+			v.fail("settings."+t.name, "%v is not a positive number; a run writes the positive difference it treats as negligible (as --%s takes it)", t.x, strings.ReplaceAll(t.name, "_", "-"))
 		}
 	}
 	for i, t := range s.FixedThresholds {
@@ -418,6 +461,12 @@ func (v *validator) score(at string, s Score) {
 	v.unit(at+".auc_unweighted", s.AUCUnweighted)
 	v.unit(at+".auc_train", s.AUCTrain)
 	v.between(at+".auc_boot_sd", s.AUCBootSD, 0, 1)
+	// A scored score holds one partial ROC entry per E of the settings,
+	// in their order: an entry removed, or its E changed, would drop a row
+	// from the report's tables or add one for an E the run never scored.
+	if es := partialEs(s.PartialROC); !slices.Equal(es, v.E) {
+		v.fail(at+".partial_roc", "holds E %v, but settings.e is %v; a run scores each E of its settings on every scored extent", es, v.E)
+	}
 	for k, p := range s.PartialROC {
 		pa := fmt.Sprintf("%s.partial_roc[%d]", at, k)
 		if !(p.E > 0 && p.E < 1) {

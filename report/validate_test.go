@@ -97,6 +97,26 @@ func TestValidateRefuses(t *testing.T) {
 				}
 			}
 		}, "point_counts.test: 22, but points lists 21 scored test points"},
+		// Accepted before, found by editing a run's results.json by hand:
+		// the verdicts were recomputed against a tolerance of -1 ("against
+		// the tolerance of ±-1 set for this run"), an empty or repeated E
+		// list dropped or doubled partial ROC, and a score's partial ROC
+		// entry removed or given another E dropped a row or added one for
+		// an E the run never scored. A run refuses such settings and
+		// writes one entry per E of its settings on every scored extent.
+		// The maps of a grid edited to a rotation or a cell of no width
+		// were drawn without a word; a run writes north-up grids only.
+		{"rotated grid", func(r *Results) { r.Grid.GeoTransform[2] = 0.5 }, "grid.geotransform: ["},
+		{"cell of no width", func(r *Results) { r.Grid.GeoTransform[1] = 0 }, "is not a north-up grid"},
+		{"south-up grid", func(r *Results) { r.Grid.GeoTransform[5] = -r.Grid.GeoTransform[5] }, "is not a north-up grid"},
+		{"tolerance of -1", func(r *Results) { r.Settings.ToleranceAUC = -1 }, "settings.tolerance_auc: -1 is not a positive number"},
+		{"tolerance of 0", func(r *Results) { r.Settings.ToleranceBoyce = 0 }, "settings.tolerance_boyce: 0 is not a positive number"},
+		{"infinite tolerance", func(r *Results) { r.Settings.TolerancePartialROC = math.Inf(1) }, "settings.tolerance_partial_roc: +Inf"},
+		{"no E", func(r *Results) { r.Settings.E = nil }, "settings.e: the list is empty"},
+		{"an E twice", func(r *Results) { r.Settings.E = []float64{0.05, 0.05} }, "settings.e[1]: 0.05 is given twice"},
+		{"an E more in the settings", func(r *Results) { r.Settings.E = append(r.Settings.E, 0.2) }, ".partial_roc: holds E [0.05 0.1], but settings.e is [0.05 0.1 0.2]"},
+		{"a partial ROC entry removed", func(r *Results) { s := firstScored(r); s.PartialROC = s.PartialROC[1:] }, ".partial_roc: holds E [0.1], but settings.e is [0.05 0.1]"},
+		{"a partial ROC entry's E changed", func(r *Results) { firstScored(r).PartialROC[0].E = 0.07 }, ".partial_roc: holds E [0.07 0.1]"},
 		{"point outside with a cell", func(r *Results) {
 			r.Points[0].Status, r.Points[0].Row, r.Points[0].Col = "outside_raster", 2, 3
 		}, "a point outside the raster has row -1 and col -1"},

@@ -505,6 +505,18 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"thresholds twice", f.run("--thresholds", "0.5,0.2,0.5"), 2, []string{"--thresholds", "0.5 twice"}, "", ""},
 		{"thresholds too many", f.run("--thresholds", strings.Join(manyThresholds, ",")), 2, []string{"--thresholds", "1001 values", "at most 1000"}, "", ""},
 		{"thresholds not numbers", f.run("--thresholds", "0.5,high"), 2, []string{"--thresholds", "high"}, "", ""},
+		// 1000 thresholds are allowed, but omitted_points.gpkg holds a
+		// column per model or null and threshold, and a GeoPackage table
+		// at most 1998 besides its id and geometry: two models and the
+		// distance-only null with 1000 thresholds (2 + 3 x 1002 = 3008
+		// columns) ran to the end and failed there (exit 1, SQLite's "too
+		// many columns on test_points"). The most that fit: (1998 - 2) / 3
+		// - 2 = 663 thresholds, and (1998 - 2) / 2 - 2 = 996 without the
+		// null.
+		{"thresholds: more columns than omitted_points.gpkg holds", f.run("--model", "m2="+f.model2, "--thresholds", strings.Join(manyThresholds[:1000], ",")), 2,
+			[]string{"--thresholds has 1000 value(s)", "3 model(s) and null(s)", "3008 columns", "give at most 663 --thresholds, or add --no-distance-null"}, "", ""},
+		{"thresholds: more columns than omitted_points.gpkg holds, no distance-only null", f.run("--model", "m2="+f.model2, "--no-distance-null", "--thresholds", strings.Join(manyThresholds[:1000], ",")), 2,
+			[]string{"2 model(s) and null(s)", "2006 columns", "give at most 996 --thresholds"}, "", ""},
 		{"iterations zero", f.run("--iterations", "0"), 2, []string{"--iterations is 0"}, "", ""},
 		{"iterations too many", f.run("--iterations", "2000000"), 2, []string{"--iterations", "1000000"}, "", ""},
 		{"fraction zero", f.run("--fraction", "0"), 2, []string{"--fraction 0"}, "", ""},

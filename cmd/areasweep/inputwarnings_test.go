@@ -22,7 +22,14 @@ import (
 //     nodata value;
 //   - one file given as two models (they score alike);
 //   - occurrences whose test points all lie outside the base region (the
-//     base extent, the study's own, goes unscored).
+//     base extent, the study's own, goes unscored);
+//   - a Byte model that declares the nodata value -9999, which no byte
+//     holds (as gdal_translate -ot Byte leaves it, its cells without data
+//     turned into 0): no cell is no data;
+//   - a second model without data on some cells of the extents (where the
+//     first model has data): it is scored there against a smaller
+//     background, so its scores and its differences from the first model
+//     compare unlike backgrounds.
 //
 // The plain study warns about none of these.
 func TestSuspectInputsWarned(t *testing.T) {
@@ -86,7 +93,7 @@ func TestSuspectInputsWarned(t *testing.T) {
 			}
 		}
 	}
-	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84"}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84", "has no data on cells where the first model", "which its Byte band (whole numbers from 0 to 255) cannot hold"}
 
 	t.Run("plain study", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
@@ -136,6 +143,49 @@ func TestSuspectInputsWarned(t *testing.T) {
 	t.Run("one file as two models", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)
 		says(t, se, ws, suspect[1], "model again", "as model m")
+	})
+	t.Run("a second model without data on part of the extents", func(t *testing.T) {
+		// The same values, with no data in the raster's south-west corner
+		// (10 to 12 E, 40 to 41 N), which holds no point and lies outside
+		// the region and its 60 km buffer but inside whole_raster.
+		f := &badFixture{smallStudy: s}
+		holes := f.rasterWith(t, "holes.tif", s.gt, wgs84WKT, func(i int) float64 {
+			if r, c := i/s.w, i%s.w; r >= 28 && c < 8 {
+				return math.NaN()
+			}
+			return s.vals[i]
+		})
+		se, ws := run(t, "--model", "m="+s.model, "--model", "holes="+holes, "--occurrences", s.occ)
+		says(t, se, ws, suspect[4], "model holes", "(m)", "whole_raster", "--model")
+		if strings.Contains(strings.Join(ws, "\n"), "model m has no data on cells") {
+			t.Errorf("the first model is warned: %q", ws)
+		}
+	})
+	t.Run("a Byte model declaring -9999", func(t *testing.T) {
+		p := filepath.Join(s.dir, "byte9999.tif")
+		ds, err := godal.Create(godal.GTiff, p, 1, godal.Byte, s.w, s.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(s.gt)
+		ds.SetProjection(wgs84WKT)
+		if err := ds.Bands()[0].SetNoData(-9999); err != nil {
+			t.Fatal(err)
+		}
+		buf := make([]uint8, len(s.vals))
+		for i, v := range s.vals {
+			if !math.IsNaN(v) {
+				buf[i] = uint8(math.Round(200 * v))
+			}
+		}
+		if err := ds.Bands()[0].Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		se, ws := run(t, "--model", "m="+p, "--occurrences", s.occ)
+		says(t, se, ws, suspect[5], "model m", "byte9999.tif", "nodata value -9999", "no cell is no data", "gdal_translate -a_nodata 0 "+p)
 	})
 	t.Run("no test point in the base region", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)

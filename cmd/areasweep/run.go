@@ -480,5 +480,43 @@ func (o *RunOptions) validateLists() error {
 			return fmt.Errorf("--hull-buffers value %g must be 0 (the hull) or positive (km)", d)
 		}
 	}
-	return nil
+	return o.validateOmitColumns()
+}
+
+// maxOmitFields is the most fields a layer of omitted_points.gpkg may
+// have: SQLite holds at most 2,000 columns in a table (SQLITE_MAX_COLUMN),
+// and a GeoPackage layer's table spends two on the feature id and the
+// geometry.
+const maxOmitFields = 2000 - 2
+
+// validateOmitColumns refuses settings whose omitted_points.gpkg would
+// need more columns than a GeoPackage table holds: line and
+// nearest_train_km, and one per model or null and threshold (the two
+// training-presence ones and each fixed one). Two models, the distance-only
+// null and 1000 --thresholds (3,008 columns) ran to the end and failed
+// there, exit 1, with SQLite's "too many columns on test_points".
+func (o *RunOptions) validateOmitColumns() error {
+	if o.ExtentsOnly {
+		return nil
+	}
+	passes := len(o.Models) + len(o.Nulls)
+	if !o.NoDistanceNull {
+		passes++
+	}
+	cols := 2 + passes*(2+len(o.Thresholds))
+	if passes == 0 || cols <= maxOmitFields {
+		return nil
+	}
+	what := fmt.Sprintf("%d model(s) and null(s)", passes)
+	if !o.NoDistanceNull {
+		what += " (the distance-only null included)"
+	}
+	fix := fmt.Sprintf("give at most %d --thresholds", (maxOmitFields-2)/passes-2)
+	if most := (maxOmitFields-2)/passes - 2; most < 0 {
+		fix = fmt.Sprintf("give at most %d models and nulls together", (maxOmitFields-2)/2)
+	} else if !o.NoDistanceNull {
+		fix += ", or add --no-distance-null"
+	}
+	return fmt.Errorf("--thresholds has %d value(s): with %s, omitted_points.gpkg would need %d columns (one per model or null and threshold, the two training-presence thresholds included), more than the %d a GeoPackage table holds; %s",
+		len(o.Thresholds), what, cols, maxOmitFields, fix)
 }

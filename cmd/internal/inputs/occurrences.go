@@ -43,6 +43,8 @@ var (
 	ErrBadRole = errors.New("inputs: role is not train or test")
 	// ErrOutOfRange: a geographic coordinate lies outside its valid range.
 	ErrOutOfRange = errors.New("inputs: coordinate outside the valid range for degrees")
+	// ErrFarCoordinate: a projected coordinate lies beyond MaxProjected.
+	ErrFarCoordinate = errors.New("inputs: coordinate beyond the Earth")
 	// ErrSwapped: the longitude and latitude columns look exchanged.
 	ErrSwapped = errors.New("inputs: longitude and latitude columns look swapped")
 	// ErrMalformed: the text is not valid delimited text (quotes, missing cells).
@@ -425,6 +427,8 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 		if err := checkDegrees(recs, cols, perr); err != nil {
 			return nil, err
 		}
+	} else if err := checkProjected(recs, cols, perr); err != nil {
+		return nil, err
 	}
 	var nTrain, nTest int
 	for _, r := range recs {
@@ -731,6 +735,30 @@ func checkDegrees(recs []Record, c columns, perr func(int, string, error) error)
 			return perr(r.Line, c.lon.name, fmt.Errorf("%w: longitude %s is outside [-180, 360]; "+
 				"correct or delete the line, or, if the coordinates are projected (not degrees), "+
 				"give their CRS with --occurrences-crs", ErrOutOfRange, fmtNum(r.X)))
+		}
+	}
+	return nil
+}
+
+// MaxProjected bounds projected coordinates (in the CRS's unit): no place
+// on the Earth lies farther from a projected CRS's origin (the Earth's
+// circumference is 4e7 m, 4e10 mm), and PROJ takes time in proportion to
+// a coordinate's size to bring it back to the globe: an easting of 1e20
+// metres kept a run transforming it for more than 10 minutes.
+const MaxProjected = 1e12
+
+// checkProjected refuses projected coordinates beyond MaxProjected.
+func checkProjected(recs []Record, c columns, perr func(int, string, error) error) error {
+	for _, r := range recs {
+		for _, v := range []struct {
+			col  string
+			what string
+			x    float64
+		}{{c.lon.name, "easting", r.X}, {c.lat.name, "northing", r.Y}} {
+			if math.Abs(v.x) > MaxProjected {
+				return perr(r.Line, v.col, fmt.Errorf("%w: %s %s is more than %g units from the origin of --occurrences-crs, beyond any place on the Earth; correct or delete the line",
+					ErrFarCoordinate, v.what, fmtNum(v.x), MaxProjected))
+			}
 		}
 	}
 	return nil

@@ -163,6 +163,12 @@ func errCases() []errCase {
 		{name: "latitude out of range", in: "lon,lat,role\n100,5,train\n10,95,test\n", geographic: true, is: ErrOutOfRange, line: 3, field: "lat", contains: []string{"95", "[-90, 90]", "occurrences-crs"}},
 		{name: "longitude out of range", in: "lon,lat,role\n10,5,train\n400,5,test\n", geographic: true, is: ErrOutOfRange, line: 3, field: "lon", contains: []string{"400", "[-180, 360]"}},
 		{name: "longitude below range", in: "lon,lat,role\n-180.5,5,train\n1,5,test\n", geographic: true, is: ErrOutOfRange, line: 2, field: "lon"},
+		// Projected coordinates beyond any place on the Earth: PROJ took
+		// more than 10 minutes to transform an easting of 1e20 metres from
+		// EPSG:3857 (the run seemed to hang); 4e7, the Earth's
+		// circumference in metres, is read.
+		{name: "easting beyond the Earth", in: "x,y,role\n40000000,-4000000,train\n1e20,5e6,test\n", is: ErrFarCoordinate, line: 3, field: "x", contains: []string{"easting 1e+20", "correct or delete the line"}},
+		{name: "northing beyond the Earth", in: "x,y,role\n4e5,-1.5e12,train\n1,5,test\n", is: ErrFarCoordinate, line: 2, field: "y", contains: []string{"northing -1500000000000"}},
 		{name: "projected data read as degrees", in: "x,y,role\n500000,4649776,train\n510000,4650000,test\n", geographic: true, is: ErrOutOfRange, line: 2, field: "y", contains: []string{"4649776 is outside"}},
 		{name: "swapped columns", in: "lon,lat,role\n45.2,-120.5,train\n40,10,train\n-33.9,151.2,test\n", geographic: true, is: ErrSwapped, line: 2, field: "lat",
 			contains: []string{"-120.5", `"lon" and "lat"`, "rename the two header fields"}},

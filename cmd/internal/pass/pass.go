@@ -72,6 +72,8 @@ type Raster struct {
 	// narrow: every stored value is a float32 (the band's type is Byte,
 	// Int8, UInt16, Int16 or Float32), so a kept block can be float32.
 	narrow bool
+	// dtype is the band's data type.
+	dtype godal.DataType
 	// signedByte: a Byte band that declares its bytes signed (a GeoTIFF
 	// with SampleFormat signed, which GDAL before 3.7 opens as Byte with
 	// PIXELTYPE=SIGNEDBYTE and reads as 0..255): decode reads 128..255 as
@@ -189,6 +191,7 @@ func Open(path string) (*Raster, error) {
 		r.narrow = true
 	}
 	r.signedByte = st.DataType == godal.Byte && r.band.Metadata("PIXELTYPE", godal.Domain("IMAGE_STRUCTURE")) == "SIGNEDBYTE"
+	r.dtype = st.DataType
 	r.open = func() (Source, error) { return openGDALSource(path) }
 	return r, nil
 }
@@ -258,6 +261,43 @@ func (r *Raster) decode(buf []float64) {
 // NoData returns the nodata value the raster's cells are compared with
 // (see the function NoData) and whether its band declares one.
 func (r *Raster) NoData() (float64, bool) { return r.nodata, r.hasNodata }
+
+// NoDataUnheld returns, when the band declares a nodata value that its
+// integer type cannot hold (not a whole number, or outside the type's
+// range), the type and its range ("Byte band (0 to 255)"); "" otherwise.
+// No cell equals such a value, so no cell is no data: a raster converted
+// with gdal_translate -ot Byte keeps the declared -9999 while its cells
+// without data now hold 0 (the value -9999 is clamped to), all scored as
+// data.
+func (r *Raster) NoDataUnheld() string {
+	if !r.hasNodata {
+		return ""
+	}
+	lo, hi := 0.0, 0.0
+	switch r.dtype {
+	case godal.Byte:
+		lo, hi = 0, 255
+		if r.signedByte {
+			lo, hi = -128, 127
+		}
+	case godal.Int8:
+		lo, hi = -128, 127
+	case godal.UInt16:
+		lo, hi = 0, 65535
+	case godal.Int16:
+		lo, hi = -32768, 32767
+	case godal.UInt32:
+		lo, hi = 0, 4294967295
+	case godal.Int32:
+		lo, hi = -2147483648, 2147483647
+	default:
+		return ""
+	}
+	if v := r.nodata; v >= lo && v <= hi && v == math.Trunc(v) {
+		return ""
+	}
+	return fmt.Sprintf("%s band (whole numbers from %.0f to %.0f)", r.dtype, lo, hi)
+}
 
 // Close closes the raster (and drops the blocks Sample kept).
 func (r *Raster) Close() error {

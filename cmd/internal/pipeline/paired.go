@@ -115,16 +115,32 @@ func (s *Study) pairJobs() []pairJob {
 			models = append(models, m)
 		}
 	}
-	var okIDs []string
-	for _, id := range ids {
-		for _, m := range all {
-			if scored(m.Name, id) != nil {
-				okIDs = append(okIDs, id)
-				break
+	// The extents something is scored on, and the reference of the
+	// differences between extents: the base extent, or the first extent
+	// some model (else some null) is scored on when no model is scored on
+	// the base. It is the report's reference (its analysis reads models
+	// only): an extent where only a null is scored (every model constant
+	// there, or without data) would otherwise be the reference here and
+	// not in the report, which then found no difference of the models to
+	// judge.
+	scoredBy := func(ms []report.Model) []string {
+		var out []string
+		for _, id := range ids {
+			for _, m := range ms {
+				if scored(m.Name, id) != nil {
+					out = append(out, id)
+					break
+				}
 			}
 		}
+		return out
 	}
-	base := report.BaseExtent(okIDs)
+	okIDs := scoredBy(all)
+	refIDs := scoredBy(models)
+	if len(refIDs) == 0 {
+		refIDs = okIDs
+	}
+	base := report.BaseExtent(refIDs)
 	var jobs []pairJob
 	for _, m := range all {
 		if scored(m.Name, base) == nil {

@@ -70,13 +70,58 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		s.warn(fmt.Sprintf("%s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
 			modelWho(p.Model), p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 	}
+	if r, ok := p.src.(*pass.Raster); ok && sums.Stats.Area > 0 {
+		if st, held := sums.Stats, r.NoDataUnheld(); held != "" {
+			nd, _ := r.NoData()
+			s.warn(fmt.Sprintf("%s (%s) declares the nodata value %g, which its %s cannot hold, so no cell is no data and every cell is scored as data (its lowest value, %g, on %.4g%% of the extents' area); if its cells without data hold another value (gdal_translate -ot turns a value beyond the type's range into the nearest it holds), declare that one (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
+				modelWho(p.Model), p.Model.Path, nd, held, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
+		}
+	}
 	if sums.Valid != nil {
 		// The extents are final only once the first model has been read.
 		if err := s.timed("family clipped to the valid cells", func() error { return s.Clip(sums.Valid) }); err != nil {
 			return err
 		}
 	}
+	if p.Index > 0 && p.Model.NullKind != report.NullDistance {
+		s.warnFewerCells(p.Model, sums.Accs)
+	}
 	return s.Score(p, sums)
+}
+
+// warnFewerCells warns when a later model or raster null lacks data on
+// cells of the extents (cells with data in the first model): it is then
+// scored on each such extent against its own cells only, a smaller
+// background than the first model's, and its scores and its paired
+// differences from the other models there compare unlike backgrounds
+// (the same values, with no data over ground the test points do not
+// reach, would read as a worse model beyond noise).
+func (s *Study) warnFewerCells(m report.Model, accs []*metrics.Accumulator) {
+	var ids []string
+	worst, worstID := 0.0, ""
+	for k, mem := range s.fam.Members {
+		if mem.Status != vocab.StatusOK || k >= len(accs) || mem.Cells <= 0 {
+			continue
+		}
+		missing := mem.Cells - accs[k].Cells()
+		if missing <= 0 {
+			continue
+		}
+		ids = append(ids, mem.ID)
+		if share := float64(missing) / float64(mem.Cells); share > worst {
+			worst, worstID = share, mem.ID
+		}
+	}
+	if len(ids) == 0 {
+		return
+	}
+	first := s.models[0].Name
+	named := strings.Join(ids[:min(len(ids), 5)], ", ")
+	if len(ids) > 5 {
+		named += fmt.Sprintf(" and %d more", len(ids)-5)
+	}
+	s.warn(fmt.Sprintf("%s has no data on cells where the first model (%s) has data, inside %d extent(s) (%s; up to %.1f%% of an extent's cells, on %s): there it is scored against its own cells with data only, a smaller background than %s's, so its scores on those extents and its differences from the other models there do not compare like with like; give it data on every cell %s has data on, or give first (--model) the model with the fewest cells with data",
+		modelWho(m), first, len(ids), named, 100*worst, worstID, first, first))
 }
 
 // noDataMarker reports whether v is a value that tools write into cells
