@@ -550,7 +550,9 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		// "PROJ: proj_create_operations: ..." and "Cannot find coordinate
 		// operations from `ENGCRS[...]' to `EPSG:4326'".
 		{"occurrences crs of Mars", f.run("--occurrences-crs", `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`), 2, []string{"--occurrences-crs", "cannot be transformed to WGS84", "same celestial body", "a CRS of the Earth"}, "", ""},
-		{"occurrences crs a local engineering one", f.run("--occurrences-crs", `LOCAL_CS["arbitrary",UNIT["metre",1]]`), 2, []string{"--occurrences-crs", "PROJ knows no transformation between the two CRSs"}, "", ""},
+		{"occurrences crs a local engineering one", f.run("--occurrences-crs", `LOCAL_CS["arbitrary",UNIT["metre",1]]`), 2, []string{"--occurrences-crs", "neither a geographic nor a projected CRS", "EPSG:4326"}, "", ""},
+		{"occurrences crs geocentric", f.run("--occurrences-crs", "EPSG:4978"), 2, []string{"--occurrences-crs", `"EPSG:4978"`, "neither a geographic nor a projected CRS"}, "", ""},
+		{"occurrences crs vertical", f.run("--occurrences-crs", "EPSG:5703"), 2, []string{"--occurrences-crs", `"EPSG:5703"`, "neither a geographic nor a projected CRS"}, "", ""},
 		{"occurrences crs an unknown projection", f.run("--occurrences-crs", "+proj=garbage +foo"), 2, []string{"--occurrences-crs", "(Unknown projection)"}, "", ""},
 		// Expat's words for an XML file cut short reached the user with
 		// GDAL's "ERROR parsing kml" and "XML parsing of GML file failed".

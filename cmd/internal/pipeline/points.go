@@ -331,6 +331,14 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is not a CRS PROJ knows%s; %s",
 				o.OccurrencesCRS, cause, crsAdvice(o.OccurrencesCRS)))
 		}
+		if !sr.Geographic() && !sr.Projected() {
+			// A geocentric (EPSG:4978), vertical (EPSG:5703) or local
+			// engineering CRS has no longitude-latitude or easting-northing
+			// pair on the Earth: PROJ fails on every point, knows no
+			// transformation, or passes them through unchanged.
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("--occurrences-crs %q is neither a geographic nor a projected CRS (a geocentric, vertical or local engineering one, say), so the X and Y columns cannot be longitudes and latitudes or eastings and northings in it; give the horizontal CRS of the coordinates, e.g. EPSG:4326 for degrees",
+				o.OccurrencesCRS))
+		}
 		geographic = sr.Geographic()
 		wgs, _ := godal.NewSpatialRefFromEPSG(4326)
 		if !sr.IsSame(wgs) {
