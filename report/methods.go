@@ -606,6 +606,18 @@ func ceilSig(v float64, sig int) string {
 func reviewerText(r *Results) string {
 	s := r.Sensitivity
 	var b strings.Builder
+	if len(s.ScoredExtents) == 0 {
+		// Nothing was scored: no count of extents, comparison or
+		// verdict to report, and no answer to the question.
+		ok := 0
+		for _, e := range r.Extents {
+			if e.Status == vocab.StatusOK {
+				ok++
+			}
+		}
+		fmt.Fprintf(&b, "We thank the reviewer for raising the dependence of the evaluation scores on the extent of the background. No model could be scored on any of the %d evaluation extent%s of this run (the report gives each extent's reason), so no score can be compared across extents and this run cannot answer the question.", ok, Plural(ok))
+		return b.String()
+	}
 	reviewerWhat(&b, r)
 	reviewerVerdicts(&b, s)
 	b.WriteString(aucAnswer(s))

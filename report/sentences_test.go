@@ -444,6 +444,15 @@ func TestMethodsTextSituations(t *testing.T) {
 				"AUC of good was 0.830 on its one scored extent, base (SE 0.046 from the test records)", "on 1 evaluation extent (base, 40,600 km²)",
 				"With one extent, no score can be compared across extents."},
 			notWant: []string{"1 extents", "Across 1", "ranged 0.830–0.830", "too few"}},
+		{name: "no extent scored (every model constant)",
+			build: func(r *Results) {
+				for i := range r.Scores {
+					r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has one value on every cell with data"
+				}
+				r.Paired, r.Rings = nil, nil
+			},
+			want:    []string{"No model could be scored on any of the 8 evaluation extents of this run", "this run cannot answer the question"},
+			notWant: []string{"on 0 evaluation extents", "For each score we compared every extent", "cannot tell"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
