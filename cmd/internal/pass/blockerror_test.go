@@ -31,4 +31,10 @@ func TestBlockError(t *testing.T) {
 	if errors.As(bad, &me) || !strings.Contains(bad.Error(), "the file may be truncated or damaged") || !fault.IsBadInput(fault.BadInput(bad)) {
 		t.Errorf("damaged block: %T %v, want the file blamed, as bad input", bad, bad)
 	}
+	// GDAL's words for a virtual raster whose source is gone.
+	gone := blockError("m.vrt", 0, 0, errors.New("vrt/a.tif: No such file or directory"))
+	if got := gone.Error(); !strings.Contains(got, "(vrt/a.tif: No such file or directory): a file the raster reads its values from is missing; restore it, or rebuild m.vrt") ||
+		strings.Contains(got, "damaged") || !fault.IsBadInput(fault.BadInput(gone)) {
+		t.Errorf("missing source: %q, want the missing file named as such, as bad input", got)
+	}
 }

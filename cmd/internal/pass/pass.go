@@ -7,6 +7,7 @@ import (
 	"runtime"
 	"runtime/debug"
 	"slices"
+	"strings"
 	"sync"
 	"sync/atomic"
 
@@ -143,11 +144,18 @@ func (s *gdalSource) Close() error { return s.ds.Close() }
 
 // blockError words GDAL's error err reading the block at column x0, row
 // y0 of the raster at path: a library that ran out of memory is a
-// *MemoryError, anything else a file that may be truncated or damaged.
+// *MemoryError, a missing file it reads from (a virtual raster's source)
+// is named as such, anything else is a file that may be truncated or
+// damaged.
 func blockError(path string, x0, y0 int, err error) error {
 	cause := gdalmsg.Cause(err.Error())
 	if gdalmsg.IsOutOfMemory(cause) {
 		return &MemoryError{fmt.Errorf("%s: reading the block at column %d row %d, %s; free some memory, raise the process's limit of virtual memory (ulimit -v, a cluster job's h_vmem) or remove it, or use fewer --workers", path, x0, y0, cause)}
+	}
+	if strings.Contains(cause, "No such file or directory") {
+		// A source of a virtual raster (or a sidecar GDAL reads the
+		// values from) is gone: the file itself is not damaged.
+		return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s): a file the raster reads its values from is missing; restore it, or rebuild %s from the files that exist", path, x0, y0, cause, path)
 	}
 	return fmt.Errorf("pass: %s: the block at column %d row %d cannot be read (%s); the file may be truncated or damaged", path, x0, y0, cause)
 }
