@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"slices"
 	"strings"
+	"unicode"
 
 	"areasweep/cmd/internal/settings"
 
@@ -650,10 +651,23 @@ func idSuggestion(id string) string {
 	if len(s) > 64 {
 		s = strings.TrimRight(s[:64], "_.-")
 	}
-	if s == "" || !batchIDRE.MatchString(s) {
+	if s == "" || !batchIDRE.MatchString(s) || 2*alnum(s) < alnum(id) {
+		// Nothing left, or less than half of the id's letters and digits
+		// (ü, ï ... are replaced): no longer a name for the same study.
 		return ""
 	}
 	return fmt.Sprintf(", for example %q", s)
+}
+
+// alnum counts the letters and digits of s, in any script.
+func alnum(s string) int {
+	n := 0
+	for _, r := range s {
+		if unicode.IsLetter(r) || unicode.IsDigit(r) {
+			n++
+		}
+	}
+	return n
 }
 
 // overlay returns a copy of base with every setting present in top laid

@@ -327,6 +327,8 @@ func TestBatchIDSuggestion(t *testing.T) {
 		"_hidden":        `, for example "hidden"`,
 		"..":             "",
 		"ü":              "",
+		"ünï":            "", // "n" would keep 1 of its 3 letters
+		"Ursus_ürsus":    `, for example "Ursus__rsus"`, // keeps 9 of 10
 	} {
 		if got := idSuggestion(id); got != want {
 			t.Errorf("idSuggestion(%q) = %q, want %q", id, got, want)
