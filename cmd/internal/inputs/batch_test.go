@@ -327,7 +327,7 @@ func TestBatchIDSuggestion(t *testing.T) {
 		"_hidden":        `, for example "hidden"`,
 		"..":             "",
 		"ü":              "",
-		"ünï":            "", // "n" would keep 1 of its 3 letters
+		"ünï":            "",                            // "n" would keep 1 of its 3 letters
 		"Ursus_ürsus":    `, for example "Ursus__rsus"`, // keeps 9 of 10
 	} {
 		if got := idSuggestion(id); got != want {
