@@ -59,7 +59,8 @@ from the documented rules WITHOUT areasweep:
               than 1e-8 relative); projected cells: Geod.polygon_area_perimeter
               of the cell outline densified 16 points per side and
               transformed to WGS84 with pyproj.
-  points      cell of each record (floor of the pixel coordinates; projected
+  points      cell of each record (floor of the pixel coordinates, those
+              within 1e-9 of a whole number taken as on that edge; projected
               grids: pyproj transform), status (outside, nodata, thinned:
               first record per cell and role kept).
   scores      area-weighted AUC, unweighted AUC and training AUC from
@@ -703,7 +704,10 @@ def study(spec):
     points = []
     seen = {}
     for i, (p, x, y) in enumerate(zip(spec["points"], px, py)):
-        fc, fr = (x - gt[0]) / gt[1], (y - gt[3]) / gt[5]
+        # README: a position within a billionth of a cell of an edge is on
+        # that edge (a decimal coordinate on an edge is not one in binary).
+        fc, fr = [round(f) if abs(f - round(f)) < 1e-9 else f
+                  for f in ((x - gt[0]) / gt[1], (y - gt[3]) / gt[5])]
         rec = {"id": i + 2, "role": p["role"]}
         if not (0 <= fc < w and 0 <= fr < h):
             rec.update(status="outside_raster", row=-1, col=-1)
