@@ -550,7 +550,12 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 			ok = false
 		}
 		if first, dup := seen[c]; dup && j > 0 && c != "id" {
-			p.add(line, c, "", fmt.Errorf("%w: columns %d and %d are both %q", ErrBatchColumn, first, j+1, c))
+			both := fmt.Sprintf("are both %q", c)
+			if a, b := strings.TrimSpace(rec[first-1]), strings.TrimSpace(rec[j]); a != b {
+				// Two spellings of one key (model and models).
+				both = fmt.Sprintf("%q and %q both give %q", a, b, c)
+			}
+			p.add(line, c, "", fmt.Errorf("%w: columns %d and %d %s; keep one of them", ErrBatchColumn, first, j+1, both))
 			ok = false
 		}
 		seen[c] = j + 1

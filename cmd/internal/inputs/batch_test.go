@@ -267,6 +267,8 @@ func TestBatchRefuses(t *testing.T) {
 		// given twice in one cell is not "already given at" its own line.
 		{"bad cell", "id,model,occurrences,region,e\na,m=x,p,r,abc\n", false, ErrBadValue, `column "e": bad value: not a list of numbers: item 1 "abc" is not a finite number; give numbers separated by ';' with a dot as decimal separator, for example 0.05;0.1`},
 		{"name twice in a cell", "id,model,occurrences,region\na,g=x;g=y,p,r\n", false, ErrBadValue, `the name "g" is given twice on this line`},
+		{"column twice", "id,model,occurrences,region,model\na,m=x,p,r,m=y\n", false, ErrBatchColumn, `columns 2 and 5 are both "model"; keep one of them`},
+		{"model and models", "id,model,models,occurrences,region\na,m=x,m=y,p,r\n", false, ErrBatchColumn, `columns 2 and 3 "model" and "models" both give "model"; keep one of them`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
