@@ -37,12 +37,14 @@ const (
 	// points than this is reported but not judged either (our choice,
 	// from the coverage simulation of metrics.TestCoverageSweep on eight
 	// landscapes: on 10 common test points up to 12% of the partial ROC
-	// ratio's intervals between two models, and up to 9% of the omission
-	// rate's, were placed against the default tolerance contrary to the
-	// true difference ("inside" with the truth beyond it, or "outside"
-	// with it within); on 30, at most 1.9% and 0.1%, within the 2.5% a
-	// correct 95% interval allows; the placements' t interval of the AUC
-	// errs so below 1.5% of the time from 10). An omission rate between
+	// ratio's intervals between two models (the truth within the
+	// tolerance) and up to 9% of the omission rate's (the truth beyond
+	// it) were placed against the default tolerance contrary to the true
+	// difference ("inside" with the truth beyond it, or "outside" with it
+	// within), where a correct 95% interval errs so at most 5% of the
+	// time with the truth within and 2.5% with it beyond; on 30, at most
+	// 1.9% and 0.1%; the placements' t interval of the AUC errs so at
+	// most 3.8% of the time at 10, the truth within). An omission rate between
 	// two extents of one model keeps MinPairedPoints: it is 0 in every
 	// resample (minCommonPoints). Its position is "too_few",
 	// as below MinPairedPoints, and its
