@@ -473,10 +473,11 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 }
 
 // aboveNullNote explains the table.
-const aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
+var aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(Student t 95% interval, n − 1 degrees of freedom), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
-	"\"not judged\": fewer than 10 common test points, or an interval from fewer than 40 formed resamples; the difference is shown, its interval is not read (our cut-offs). " +
+	fmt.Sprintf("\"not judged\": fewer than %d common test points (%d for the partial ROC ratio), or an interval from fewer than %d formed resamples; the difference is shown, its interval is not read (our cut-offs). ",
+		MinPairedPoints, MinResampledPoints, MinPercentileResamples) +
 	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.

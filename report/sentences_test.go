@@ -1382,7 +1382,8 @@ func TestTenPointCutoffOurs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	checkWords(t, "page", string(page), []string{"share fewer than 10 test points (our cut-off) are not counted"}, nil)
+	checkWords(t, "page", string(page), []string{"share fewer than 10 test points (30 for a score from the resamples: the partial ROC ratio, an omission rate; our cut-offs) are not counted",
+		"fewer than 10 common test points (30 for the partial ROC ratio), or an interval from fewer than 40 formed resamples"}, nil)
 }
 
 // TestMethodsDescribeWhatWasComputed: the methods define every score they
