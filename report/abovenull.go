@@ -85,9 +85,6 @@ type NullGap struct {
 	NotJudged string `json:"not_judged_reason,omitempty"`
 	// nFormed is the number of resamples that formed the difference.
 	nFormed int
-	// minPoints is the fewest common test points it is read on
-	// (minCommonPoints).
-	minPoints int
 }
 
 // gapReading reads a defined interval against 0.
@@ -128,7 +125,7 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p == nil {
 						continue
 					}
-					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined, nFormed: p.Formed(), minPoints: p.minPoints()}
+					g := NullGap{Extent: id, CommonPoints: p.CommonPoints, Method: p.Method, Defined: p.Defined, Reading: ReadingUndefined, nFormed: p.Formed()}
 					if i, ok := a.extIndex[id]; ok {
 						g.AreaKm2 = a.r.Extents[i].AreaKm2
 					}
@@ -270,11 +267,8 @@ func (g *NullGap) why() string {
 	if g.NotJudged != "" || !g.Defined || !notJudgedPosition(g.Reading) {
 		return g.NotJudged
 	}
-	cut := g.minPoints
-	if cut == 0 { // a gap made by hand
-		cut = minCommonPoints(g.Method, PairedKindNull, "")
-	}
-	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed, cut)
+	// A gap is of kind null, whose cut-off depends on its method alone.
+	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed, minCommonPoints(g.Method, PairedKindNull, ""))
 }
 
 // zero reports whether the gap and both ends of its interval are 0.

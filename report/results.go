@@ -493,9 +493,9 @@ func BootstrapReadable(pr PartialROC, n int) bool {
 func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 
 // notJudgedKind is positionTooFew when p rests on fewer common test
-// points than its method is judged on (minCommonPoints), positionTooFewResamples when its
-// percentile interval comes from fewer than MinPercentileResamples formed
-// resamples, positionNotCalibrated for any other Boyce index difference
+// points than it is judged on (minPoints), positionTooFewResamples when
+// its percentile interval comes from fewer than MinPercentileResamples
+// formed resamples, positionNotCalibrated for any other Boyce index difference
 // from the resamples (BoyceCoverage), "" when p is judged. Too few points
 // is said first: it is the reason whatever the resamples.
 func (p *Paired) notJudgedKind() string {

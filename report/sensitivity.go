@@ -44,11 +44,10 @@ const (
 	// within), where a correct 95% interval errs so at most 5% of the
 	// time with the truth within and 2.5% with it beyond; on 30, at most
 	// 1.9% and 0.1%; the placements' t interval of the AUC errs so at
-	// most 3.8% of the time at 10, the truth within). An omission rate between
-	// two extents of one model keeps MinPairedPoints: it is 0 in every
-	// resample (minCommonPoints). Its position is "too_few",
-	// as below MinPairedPoints, and its
-	// reason names this cut-off.
+	// most 3.8% of the time at 10, the truth within). An omission rate
+	// between two extents of one model keeps MinPairedPoints: it is 0 in
+	// every resample (minCommonPoints). Its position is "too_few", as
+	// below MinPairedPoints, and its reason names this cut-off.
 	MinResampledPoints = 30
 	// MinPercentileResamples: with fewer resamples than this a 2.5th and
 	// a 97.5th percentile do not lie inside the resampled values (1/0.025
@@ -155,20 +154,6 @@ const (
 )
 
 // MetricInfo names one analysed metric.
-// minCommonPoints is the fewest common test points a paired difference of
-// the metric and kind is judged on (the function of the same name, by the
-// method its differences are formed with: the placements for the AUCs,
-// the paired resamples for the partial ROC ratio, omission rates and
-// Boyce index, exact for the predicted area).
-func (m MetricInfo) minCommonPoints(kind PairKind) int {
-	method := ""
-	switch m.Kind {
-	case MetricPartialROC, MetricOmission, MetricBoyce:
-		method = "paired_resamples"
-	}
-	return minCommonPoints(method, kind, m.Key)
-}
-
 type MetricInfo struct {
 	// Key is a stable identifier: "auc", "auc_unweighted",
 	// "partial_roc_e0.05", "omission_minimum_training_presence",
@@ -190,6 +175,20 @@ type MetricInfo struct {
 	// Tolerance is the difference treated as negligible in the verdicts
 	// (Settings).
 	Tolerance float64 `json:"tolerance"`
+}
+
+// minCommonPoints is the fewest common test points a paired difference of
+// the metric and kind is judged on (the function of the same name, by the
+// method its differences are formed with: the placements for the AUCs,
+// the paired resamples for the partial ROC ratio, omission rates and
+// Boyce index, exact for the predicted area).
+func (m MetricInfo) minCommonPoints(kind PairKind) int {
+	method := ""
+	switch m.Kind {
+	case MetricPartialROC, MetricOmission, MetricBoyce:
+		method = "paired_resamples"
+	}
+	return minCommonPoints(method, kind, m.Key)
 }
 
 // SkippedExtent is an extent left out of the analysis.
