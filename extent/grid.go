@@ -17,6 +17,7 @@ import (
 
 	"areasweep/extent/gdalmsg"
 	"areasweep/extent/geodesy"
+	"areasweep/extent/vocab"
 )
 
 var registerOnce sync.Once
@@ -284,8 +285,8 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 	// and PROJ takes time in proportion to a coordinate's size to bring it
 	// back to the globe: a raster whose corner lay at 1e20 in EPSG:3857
 	// kept the run computing its cell areas for more than a minute.
-	if far := math.Max(math.Max(math.Abs(gt[0]), math.Abs(gt[0]+float64(width)*gt[1])), math.Max(math.Abs(gt[3]), math.Abs(gt[3]+float64(height)*gt[5]))); far > MaxProjectedCoordinate {
-		return nil, fmt.Errorf("extent: the raster reaches %g units from the origin of its CRS, more than %g, beyond any place on the Earth; the raster's georeferencing is broken (check it with gdalinfo)", far, MaxProjectedCoordinate)
+	if far := math.Max(math.Max(math.Abs(gt[0]), math.Abs(gt[0]+float64(width)*gt[1])), math.Max(math.Abs(gt[3]), math.Abs(gt[3]+float64(height)*gt[5]))); far > vocab.MaxProjected {
+		return nil, fmt.Errorf("extent: the raster reaches %g units from the origin of its CRS, more than %g, beyond any place on the Earth; the raster's georeferencing is broken (check it with gdalinfo)", far, vocab.MaxProjected)
 	}
 	if g.toLL, err = newTransforms(sr, wgs); err != nil {
 		return nil, notOnEarth(wkt, err)

@@ -17,6 +17,7 @@ import (
 	"github.com/paulmach/orb/encoding/wkb"
 
 	"areasweep/extent/gdalmsg"
+	"areasweep/extent/vocab"
 )
 
 // ErrNoOverlap is returned when a polygon layer covers no cell of the grid.
@@ -536,13 +537,8 @@ func noGeometry(g *godal.Geometry) bool {
 	return g.Empty()
 }
 
-// MaxProjectedCoordinate bounds the coordinates of a projected raster or
-// layer (in its CRS's unit), as inputs.MaxProjected bounds the
-// occurrences': the Earth's circumference is 4e7 m, 4e10 mm.
-const MaxProjectedCoordinate = 1e12
-
 // coordinateProblem says what is wrong with the coordinates of g, or "":
-// not finite, for a projected layer one beyond MaxProjectedCoordinate, or for a
+// not finite, for a projected layer one beyond vocab.MaxProjected, or for a
 // latitude-longitude layer a latitude beyond the poles or a longitude
 // beyond one and a half turns.
 func coordinateProblem(g *godal.Geometry, geographic bool) string {
@@ -556,14 +552,11 @@ func coordinateProblem(g *godal.Geometry, geographic bool) string {
 		}
 	}
 	if !geographic {
-		// No place on the Earth lies this far from a projected CRS's
-		// origin (its circumference is 4e10 mm), and PROJ takes time in
-		// proportion to a coordinate's size to bring it back to the
-		// globe: a vertex at an easting of 1e20 in EPSG:3857 kept the run
+		// A vertex at an easting of 1e20 in EPSG:3857 kept the run
 		// reprojecting the region for more than 2 minutes.
 		for _, v := range b {
-			if math.Abs(v) > MaxProjectedCoordinate {
-				return fmt.Sprintf("has a vertex at %g, more than %g units from the origin of the layer's CRS, beyond any place on the Earth", v, MaxProjectedCoordinate)
+			if math.Abs(v) > vocab.MaxProjected {
+				return fmt.Sprintf("has a vertex at %g, more than %g units from the origin of the layer's CRS, beyond any place on the Earth", v, vocab.MaxProjected)
 			}
 		}
 		return ""

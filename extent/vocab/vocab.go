@@ -76,3 +76,12 @@ const (
 	PointNoData        PointStatus = "nodata"
 	PointThinned       PointStatus = "thinned"
 )
+
+// MaxProjected bounds the coordinates of projected inputs (occurrence
+// records, raster corners, polygon vertices), in their CRS's unit: no
+// place on the Earth lies farther from a projected CRS's origin (the
+// Earth's circumference is 4e7 m, 4e10 mm), and PROJ takes time in
+// proportion to a coordinate's size to bring it back to the globe (an
+// easting of 1e20 metres kept a run transforming it for more than 10
+// minutes). Inputs beyond it are refused.
+const MaxProjected = 1e12

@@ -43,7 +43,7 @@ var (
 	ErrBadRole = errors.New("inputs: role is not train or test")
 	// ErrOutOfRange: a geographic coordinate lies outside its valid range.
 	ErrOutOfRange = errors.New("inputs: coordinate outside the valid range for degrees")
-	// ErrFarCoordinate: a projected coordinate lies beyond MaxProjected.
+	// ErrFarCoordinate: a projected coordinate lies beyond vocab.MaxProjected.
 	ErrFarCoordinate = errors.New("inputs: coordinate beyond the Earth")
 	// ErrSwapped: the longitude and latitude columns look exchanged.
 	ErrSwapped = errors.New("inputs: longitude and latitude columns look swapped")
@@ -740,14 +740,7 @@ func checkDegrees(recs []Record, c columns, perr func(int, string, error) error)
 	return nil
 }
 
-// MaxProjected bounds projected coordinates (in the CRS's unit): no place
-// on the Earth lies farther from a projected CRS's origin (the Earth's
-// circumference is 4e7 m, 4e10 mm), and PROJ takes time in proportion to
-// a coordinate's size to bring it back to the globe: an easting of 1e20
-// metres kept a run transforming it for more than 10 minutes.
-const MaxProjected = 1e12
-
-// checkProjected refuses projected coordinates beyond MaxProjected.
+// checkProjected refuses projected coordinates beyond vocab.MaxProjected.
 func checkProjected(recs []Record, c columns, perr func(int, string, error) error) error {
 	for _, r := range recs {
 		for _, v := range []struct {
@@ -755,9 +748,9 @@ func checkProjected(recs []Record, c columns, perr func(int, string, error) erro
 			what string
 			x    float64
 		}{{c.lon.name, "easting", r.X}, {c.lat.name, "northing", r.Y}} {
-			if math.Abs(v.x) > MaxProjected {
+			if math.Abs(v.x) > vocab.MaxProjected {
 				return perr(r.Line, v.col, fmt.Errorf("%w: %s %s is more than %g units from the origin of --occurrences-crs, beyond any place on the Earth; correct or delete the line",
-					ErrFarCoordinate, v.what, fmtNum(v.x), MaxProjected))
+					ErrFarCoordinate, v.what, fmtNum(v.x), vocab.MaxProjected))
 			}
 		}
 	}
