@@ -49,7 +49,7 @@ type Interval struct {
 // differences: the interval is the one-sample Student t interval of that
 // mean (Student 1908, Biometrika 6:1-25), where the normal quantile of
 // DeLong's large-sample interval covers less than 95% at small n (0.91 at
-// n = 10 in TestPairedIntervalCoverage; the t quantile 0.93 to 0.96 over
+// n = 10 in TestPairedIntervalCoverage; the t quantile 0.925 to 0.957 over
 // the landscapes of TestCoverageSweep). It panics when the lengths differ.
 func PairedPlacements(a, b []float64) Interval {
 	if len(a) != len(b) {
