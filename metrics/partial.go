@@ -50,8 +50,8 @@ const pcgStream = 0x9E3779B97F4A7C15
 // presence exactly despite binary rounding of 0.95.
 //
 // The published bootstrap (Peterson et al. 2008) repeats this on B
-// resamples, each drawing
-// max(1, round(f*n)) test presences with replacement (f = Settings.Fraction;
+// resamples, each drawing ResampleSize(f, n) = max(1, round(f*n)) test
+// presences with replacement (f = Settings.Fraction;
 // math/rand/v2 PCG seeded with (Seed, Seed xor 0x9E3779B97F4A7C15); draws
 // are positions in the ascending-sorted test values, so results depend only
 // on the multiset of test values and the seed; the same resamples serve all
@@ -77,8 +77,9 @@ type PartialROC struct {
 	// comment). PValue cannot resolve values below 1/(formed resamples).
 	RatioMean, RatioSD, CILow, CIHigh, PValue float64
 	// Iterations is the number of resamples drawn, NotFormed how many of
-	// them could not form a curve.
-	Iterations, NotFormed int
+	// them could not form a curve; ResampleSize is the number of test
+	// presences each draws (ResampleSize).
+	Iterations, NotFormed, ResampleSize int
 	// Formed reports whether the full-set ratio is defined; Reason says why
 	// not (ReasonPartialNull or ReasonPartialTie).
 	Formed bool
@@ -97,6 +98,11 @@ type PartialROC struct {
 	// ModelArea and NullArea are the full-set areas whose ratio is Ratio.
 	ModelArea, NullArea float64
 }
+
+// ResampleSize is the number of test presences each resample of the
+// published bootstrap draws from n with fraction f: max(1, round(f n)),
+// halves rounded away from zero.
+func ResampleSize(f float64, n int) int { return max(1, int(math.Round(f*float64(n)))) }
 
 // snapCount rounds x to the nearest integer when it is within 1e-9
 // (relative, at least absolute) of it.
@@ -363,7 +369,7 @@ func partialROC(p *presences, s Settings) []PartialROC {
 	out := make([]PartialROC, len(s.E))
 	for i, e := range s.E {
 		pr := p.partialArea(p.count, p.n, e)
-		out[i] = PartialROC{E: e, XE: pr.xE, Iterations: s.Iterations}
+		out[i] = PartialROC{E: e, XE: pr.xE, Iterations: s.Iterations, ResampleSize: ResampleSize(s.Fraction, p.n)}
 		switch pr.how {
 		case crossFormed:
 			out[i].Formed = true
@@ -385,7 +391,7 @@ func partialROC(p *presences, s Settings) []PartialROC {
 	}
 
 	B := s.Iterations
-	r := max(1, int(math.Round(s.Fraction*float64(p.n))))
+	r := ResampleSize(s.Fraction, p.n)
 	rng := rand.NewPCG(s.Seed, s.Seed^pcgStream)
 	counts := make([]int, len(p.j))
 	ratios := make([][]float64, len(s.E))

@@ -4,37 +4,58 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"areasweep/metrics"
 )
 
 // TestBootstrapTooFewPoints: the published half-size bootstrap of the
 // partial ROC ratio gave, on an extent of one test point, an interval of
 // zero width and a P printed "< 0.005" (every resample is that point: an
-// audit of edge cases), a test the data cannot support. On fewer than MinPairedPoints
-// test points (or fewer than MinPercentileResamples resamples formed) the
-// report gives the full-sample ratio and the resamples' mean, without
-// percentiles or P.
+// audit of edge cases), a test the data cannot support; so did a
+// resample fraction of 1e-12 on any number of points (each resample one
+// point). Where a resample draws fewer than MinPairedPoints test points
+// (or fewer than MinPercentileResamples resamples formed) the report gives
+// the full-sample ratio and the resamples' mean, without percentiles or P.
 func TestBootstrapTooFewPoints(t *testing.T) {
 	cases := []struct {
-		n, iterations, notFormed int
-		want                     bool
+		size, iterations, notFormed int
+		want                        bool
 	}{
 		{1, 200, 0, false},
 		{3, 200, 0, false},
 		{MinPairedPoints - 1, 200, 0, false},
 		{MinPairedPoints, 200, 0, true},
-		{90, 1, 0, false},
-		{90, 2, 0, false},
-		{90, MinPercentileResamples - 1, 0, false},
-		{90, MinPercentileResamples, 0, true},
-		{90, 200, 200 - MinPercentileResamples + 1, false},
-		{90, 200, 200 - MinPercentileResamples, true},
-		{90, 200, 199, false},
+		{45, 1, 0, false},
+		{45, 2, 0, false},
+		{45, MinPercentileResamples - 1, 0, false},
+		{45, MinPercentileResamples, 0, true},
+		{45, 200, 200 - MinPercentileResamples + 1, false},
+		{45, 200, 200 - MinPercentileResamples, true},
+		{45, 200, 199, false},
 	}
 	for _, c := range cases {
-		pr := PartialROC{Iterations: c.iterations, NotFormed: c.notFormed}
-		if got := BootstrapReadable(pr, c.n); got != c.want {
-			t.Errorf("n %d, %d of %d formed: readable %v, want %v", c.n, c.iterations-c.notFormed, c.iterations, got, c.want)
+		pr := PartialROC{Iterations: c.iterations, NotFormed: c.notFormed, ResampleSize: c.size}
+		if got := BootstrapReadable(pr); got != c.want {
+			t.Errorf("%d points per resample, %d of %d formed: readable %v, want %v", c.size, c.iterations-c.notFormed, c.iterations, got, c.want)
 		}
+	}
+	// The fewest test points an extent needs at a fraction: by a scan of
+	// metrics.ResampleSize (max(1, round(f n))) here, against
+	// minBootstrapPoints's arithmetic.
+	for _, f := range []float64{1, 0.9, 0.75, 0.5, 0.3, 0.25, 0.1, 0.05, 0.01} {
+		n := 1
+		for metrics.ResampleSize(f, n) < MinPairedPoints {
+			n++
+		}
+		if got := minBootstrapPoints(f); got != n {
+			t.Errorf("fraction %v: minBootstrapPoints %d, scan %d", f, got, n)
+		}
+	}
+	if got := minBootstrapPoints(0.5); got != 19 {
+		t.Errorf("fraction 0.5: %d, want 19 (round(9.5) = 10, round(9) = 9)", got)
+	}
+	if got := minBootstrapPoints(1e-12); got < 9e12 {
+		t.Errorf("fraction 1e-12: %d", got)
 	}
 
 	r := loadSample(t)
@@ -48,6 +69,9 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 		t.Fatal("no partial ROC of good on base in the sample")
 	}
 	sc.TestPoints = 1
+	for k := range sc.PartialROC {
+		sc.PartialROC[k].ResampleSize = 1
+	}
 	pr := &sc.PartialROC[0]
 	pr.Defined, pr.Ratio, pr.RatioMean, pr.CILow, pr.CIHigh, pr.PValue, pr.NotFormed = true, 1.884, 1.884, 1.884, 1.884, 0, 0
 	analyzed(t, r)
@@ -68,7 +92,7 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 	if row[3].text != "1.884" || row[4].text != "1.884" {
 		t.Errorf("ratio and mean: %s, %s", row[3].text, row[4].text)
 	}
-	checkWords(t, "table caption", v.TooFewNote, []string{"fewer than 10 test records (our cut-off, as for the AUC's paired differences)"}, nil)
+	checkWords(t, "table caption", v.TooFewNote, []string{"Where a resample draws fewer than 10 test records (an extent with fewer than 19 at 50%) (our cut-off, as for the AUC's paired differences)"}, nil)
 	td, err := teachData(r)
 	if err != nil {
 		t.Fatal(err)
@@ -79,8 +103,8 @@ func TestBootstrapTooFewPoints(t *testing.T) {
 	if strings.Contains(methodsText(analyzedSample(t)), "neither is given") || scoresSection(analyzedSample(t)).TooFewNote != "" {
 		t.Error("the note is given although every extent holds enough test points")
 	}
-	checkWords(t, "methods", methodsText(r), []string{"neither is given on an extent with fewer than 10 test records, our cut-off"}, nil)
-	checkWords(t, "caption", metricsCaption(r), []string{"(no bar on an extent with fewer than 10 test records, our cut-off)"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"neither is given where a resample draws fewer than 10 test records (an extent with fewer than 19 at 50%), our cut-off"}, nil)
+	checkWords(t, "caption", metricsCaption(r), []string{"(no bar where a resample draws fewer than 10 test records (an extent with fewer than 19 at 50%), our cut-off)"}, nil)
 	for _, sp := range r.Sensitivity.Spreads {
 		if sp.Metric != MetricKeyPartialROC(pr.E) || sp.Model != "good" {
 			continue

@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"strings"
 	"testing"
+
+	"areasweep/metrics"
 )
 
 // TestPairedJudgedCutOffs: a paired difference is judged on at least
@@ -332,8 +334,8 @@ func TestBatchNotJudgedReason(t *testing.T) {
 func TestMethodsBootstrapFewFormed(t *testing.T) {
 	const (
 		onFormed = "; neither is given where fewer than 40 resamples formed a ratio, our cut-off)"
-		onPoints = "; neither is given on an extent with fewer than 10 test records, our cut-off)"
-		onBoth   = "; neither is given on an extent with fewer than 10 test records or where fewer than 40 resamples formed a ratio, our cut-offs)"
+		onPoints = "; neither is given where a resample draws fewer than 10 test records (an extent with fewer than 19 at 50%), our cut-off)"
+		onBoth   = "; neither is given where a resample draws fewer than 10 test records (an extent with fewer than 19 at 50%) or where fewer than 40 resamples formed a ratio, our cut-offs)"
 	)
 	cases := []struct {
 		name            string
@@ -364,6 +366,9 @@ func TestMethodsBootstrapFewFormed(t *testing.T) {
 				}
 				if c.basePoints > 0 && sc.Extent == "base" && sc.Model == "good" {
 					sc.TestPoints = c.basePoints
+					for j := range sc.PartialROC {
+						sc.PartialROC[j].ResampleSize = metrics.ResampleSize(r.Settings.ResampleFraction, c.basePoints)
+					}
 				}
 			}
 			analyzed(t, r)

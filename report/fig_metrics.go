@@ -70,7 +70,7 @@ func metricPointOf(m MetricInfo, sc *Score, paired int) (metricPoint, bool) {
 			if math.Abs(pr.E-m.E) > 1e-12 || pr.Iterations-pr.NotFormed < 1 {
 				continue
 			}
-			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: BootstrapReadable(pr, sc.TestPoints)}, true
+			return metricPoint{v: pr.RatioMean, lo: pr.CILow, hi: pr.CIHigh, bar: BootstrapReadable(pr)}, true
 		}
 	case MetricOmission, MetricAreaFraction:
 		for _, t := range sc.Thresholds {
@@ -439,16 +439,40 @@ type errPoints struct {
 	plotter.YErrors
 }
 
-// fewTestPoints tells whether a scored model or null holds fewer than
-// MinPairedPoints test points on some extent (where the published
-// bootstrap gives no interval or P: BootstrapReadable).
-func fewTestPoints(r *Results) bool {
+// fewResamplePoints tells whether the published bootstrap of a scored
+// model or null draws fewer than MinPairedPoints test points per resample
+// on some extent (where it gives no interval or P: BootstrapReadable).
+func fewResamplePoints(r *Results) bool {
 	for _, sc := range r.Scores {
-		if sc.Scored && sc.TestPoints < MinPairedPoints {
+		if sc.Scored && len(sc.PartialROC) > 0 && sc.PartialROC[0].ResampleSize < MinPairedPoints {
 			return true
 		}
 	}
 	return false
+}
+
+// minBootstrapPoints is the fewest test points on which each resample of
+// the published bootstrap at fraction f draws MinPairedPoints of them
+// (metrics.ResampleSize; BootstrapReadable): 19 at 0.5.
+func minBootstrapPoints(f float64) int {
+	if !(f > 0) {
+		return MinPairedPoints
+	}
+	n := max(1, int(math.Ceil((float64(MinPairedPoints)-0.5)/f)))
+	for n > 1 && metrics.ResampleSize(f, n-1) >= MinPairedPoints {
+		n--
+	}
+	for metrics.ResampleSize(f, n) < MinPairedPoints {
+		n++
+	}
+	return n
+}
+
+// fewResampleWords says where the bootstrap gives no interval or P for
+// too few points per resample: "where a resample draws fewer than 10 test
+// records (an extent with fewer than 19 at 50%)".
+func fewResampleWords(st Settings) string {
+	return fmt.Sprintf("where a resample draws fewer than %d test records (an extent with fewer than %d at %s%%)", MinPairedPoints, minBootstrapPoints(st.ResampleFraction), fmtG(100*st.ResampleFraction))
 }
 
 // undrawnSentence names, per metric, the models and nulls with no marker
@@ -550,8 +574,8 @@ func metricsCaption(r *Results) string {
 		bar := ""
 		if st.Iterations >= 2 {
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
-			if fewTestPoints(r) {
-				bar += fmt.Sprintf(" (no bar on an extent with fewer than %d test records, our cut-off)", MinPairedPoints)
+			if fewResamplePoints(r) {
+				bar += fmt.Sprintf(" (no bar %s, our cut-off)", fewResampleWords(st))
 			}
 		}
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+

@@ -36,7 +36,7 @@ func (sc *Score) SetScores(out metrics.Scores, unitsPerKm2 float64) {
 		sc.PartialROC = append(sc.PartialROC, PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
 			TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
 			Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
-			CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed})
+			CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed, ResampleSize: p.ResampleSize})
 	}
 	for _, t := range out.Thresholds {
 		sc.Thresholds = append(sc.Thresholds, Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,

@@ -475,11 +475,11 @@ func scoresSection(r *Results) scoresView {
 			}
 			if !formedPartialROC(pr) {
 				row = append(row, full, dash, dash, dash)
-			} else if !BootstrapReadable(pr, sc.TestPoints) {
-				// Too few test points (or resamples) for an interval
-				// or a test: the mean only.
+			} else if !BootstrapReadable(pr) {
+				// Too few test points per resample (or resamples)
+				// for an interval or a test: the mean only.
 				row = append(row, full, nc(pr.RatioMean, 3), dash, dash)
-				v.TooFewNote = fmt.Sprintf(" On an extent with fewer than %d test records (our cut-off, as for the AUC's paired differences), or where fewer than %d resamples formed a ratio (our cut-off, as for the paired differences), the percentiles and P are not given (–): resamples of so few records, or so few resamples, are no basis for an interval or a test.", MinPairedPoints, MinPercentileResamples)
+				v.TooFewNote = fmt.Sprintf(" %s (our cut-off, as for the AUC's paired differences), or where fewer than %d resamples formed a ratio (our cut-off, as for the paired differences), the percentiles and P are not given (–): resamples of so few records, or so few resamples, are no basis for an interval or a test.", upperFirst(fewResampleWords(r.Settings)), MinPercentileResamples)
 			} else {
 				row = append(row, full, nc(pr.RatioMean, 3),
 					cell{text: f3(pr.CILow) + " to " + f3(pr.CIHigh), num: pr.CILow, isN: true, cls: "n"},

@@ -151,11 +151,11 @@ func methodsScores(b *strings.Builder, r *Results) {
 	if len(st.E) > 0 {
 		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
-		switch fewPts, fewB := fewTestPoints(r), fewFormedBootstrap(r); {
+		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
 		case fewPts && fewB:
-			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records or where fewer than %d resamples formed a ratio, our cut-offs", MinPairedPoints, MinPercentileResamples)
+			fmt.Fprintf(b, "; neither is given %s or where fewer than %d resamples formed a ratio, our cut-offs", fewResampleWords(st), MinPercentileResamples)
 		case fewPts:
-			fmt.Fprintf(b, "; neither is given on an extent with fewer than %d test records, our cut-off", MinPairedPoints)
+			fmt.Fprintf(b, "; neither is given %s, our cut-off", fewResampleWords(st))
 		case fewB:
 			fmt.Fprintf(b, "; neither is given where fewer than %d resamples formed a ratio, our cut-off", MinPercentileResamples)
 		}
@@ -181,16 +181,17 @@ func methodsScores(b *strings.Builder, r *Results) {
 }
 
 // fewFormedBootstrap tells whether the published bootstrap of a scored
-// partial ROC ratio on enough test points formed some resamples, but fewer
-// than MinPercentileResamples: the report gives no percentiles or P there
-// (BootstrapReadable), as on too few test points (fewTestPoints).
+// partial ROC ratio with enough test points per resample formed some
+// resamples, but fewer than MinPercentileResamples: the report gives no
+// percentiles or P there (BootstrapReadable), as with too few points per
+// resample (fewResamplePoints).
 func fewFormedBootstrap(r *Results) bool {
 	for _, sc := range r.Scores {
-		if !sc.Scored || sc.TestPoints < MinPairedPoints {
+		if !sc.Scored {
 			continue
 		}
 		for _, pr := range sc.PartialROC {
-			if formedPartialROC(pr) && !BootstrapReadable(pr, sc.TestPoints) {
+			if pr.ResampleSize >= MinPairedPoints && formedPartialROC(pr) && !BootstrapReadable(pr) {
 				return true
 			}
 		}

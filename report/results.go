@@ -41,7 +41,12 @@ import (
 // degrees of freedom (metrics.PairedPlacements) where version 3 had the
 // normal one. A version 3 file is refused, so that its intervals are
 // never described with the words of the other.
-const SchemaVersion = 4
+//
+// Version 5 adds resample_size to each partial ROC record: the number of
+// test points each resample of the published bootstrap draws, on which
+// whether the report gives its interval and P now rests
+// (BootstrapReadable). A version 4 file has none, and is refused.
+const SchemaVersion = 5
 
 // Results is the whole of one run as written to results.json. Every slice is
 // kept in a stable order (extents in family order, scores by model then
@@ -349,6 +354,9 @@ type PartialROC struct {
 	PValue          float64 `json:"p_value"`
 	Iterations      int     `json:"iterations"`
 	NotFormed       int     `json:"iterations_not_formed"`
+	// ResampleSize is the number of test points each resample draws
+	// (with replacement): max(1, round(fraction x test points)).
+	ResampleSize int `json:"resample_size"`
 }
 
 // Threshold is a threshold-based omission test.
@@ -470,19 +478,20 @@ type Paired struct {
 	NotJudged string `json:"not_judged_reason,omitempty"`
 }
 
-// BootstrapReadable tells whether the published half-size bootstrap of pr,
-// on an extent of n test points, gives an interval and a P: at least
-// MinPercentileResamples of its resamples formed a ratio (fewer put no
-// value below the 2.5th or above the 97.5th percentile, and bound P below
-// by 1/B, as for the paired differences) and n is at least
-// MinPairedPoints (the cut-off of the paired differences). Each resample
-// holds a share of the n points, so on fewer it is a handful of them
-// (with one test point every resample is that point: an interval of zero
-// width and a P of 0, printed "< 1/B"), no basis for an interval or a
-// test. The full-sample ratio and the resamples' mean are given either
-// way; results.json keeps every number.
-func BootstrapReadable(pr PartialROC, n int) bool {
-	return pr.Iterations-pr.NotFormed >= MinPercentileResamples && n >= MinPairedPoints
+// BootstrapReadable tells whether the published half-size bootstrap of pr
+// gives an interval and a P: at least MinPercentileResamples of its
+// resamples formed a ratio (fewer put no value below the 2.5th or above
+// the 97.5th percentile, and bound P below by 1/B, as for the paired
+// differences) and each resample draws at least MinPairedPoints test
+// points (the cut-off of the paired differences, our choice). A resample
+// of fewer is a handful of points (with one point every resample is a
+// single point: an interval of zero width and a P of 0, printed "< 1/B"),
+// no basis for an interval or a test, whether the extent holds few test
+// points or the fraction (--fraction) is small: with the default 0.5 the
+// extent needs 19 (round(9.5) = 10). The full-sample ratio and the
+// resamples' mean are given either way; results.json keeps every number.
+func BootstrapReadable(pr PartialROC) bool {
+	return pr.Iterations-pr.NotFormed >= MinPercentileResamples && pr.ResampleSize >= MinPairedPoints
 }
 
 // Judged tells whether p rests on enough to be judged (a verdict, a

@@ -105,7 +105,7 @@ func metricValue(m MetricInfo, s *Score) (v float64, ok bool, boot, lo, hi float
 			if !p.Defined {
 				return 0, false, 0, 0, 0, false
 			}
-			hasBoot = BootstrapReadable(p, s.TestPoints)
+			hasBoot = BootstrapReadable(p)
 			return p.Ratio, true, p.RatioSD, p.CILow, p.CIHigh, hasBoot
 		}
 	case MetricOmission, MetricAreaFraction:

@@ -115,7 +115,7 @@ func teachData(r *Results) ([]byte, error) {
 			for _, pr := range sc.PartialROC {
 				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
 					c.PartialROC, c.PartialROCOK = pr.Ratio, true
-					if BootstrapReadable(pr, sc.TestPoints) {
+					if BootstrapReadable(pr) {
 						c.PartialROCLow, c.PartialROCHigh = pr.CILow, pr.CIHigh
 					} else {
 						c.PartialROCNoInterval = true

@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // MaxPreviewSide bounds each side of the preview a results file may hold;
@@ -318,6 +319,8 @@ type validator struct {
 	models, extents map[string]bool
 	// E are the settings' E values, which every scored score holds.
 	E []float64
+	// frac is settings.resample_fraction.
+	frac float64
 }
 
 // partialEs lists the E of each partial ROC entry.
@@ -416,7 +419,7 @@ func (v *validator) settings(s Settings) {
 			v.fail(fmt.Sprintf("settings.e[%d]", i), "%v is given twice; a run scores each E once", e)
 		}
 	}
-	v.E = s.E
+	v.E, v.frac = s.E, s.ResampleFraction
 	// The verdicts are recomputed against these: a tolerance of 0 or
 	// below (one a run refuses) would turn them upside down ("against the
 	// tolerance of ±-1").
@@ -480,6 +483,11 @@ func (v *validator) score(at string, s Score) {
 		v.unit(pa+".p_value", p.PValue)
 		if p.Iterations < 0 || p.NotFormed < 0 || p.NotFormed > p.Iterations {
 			v.fail(pa, "iterations %d and iterations_not_formed %d do not fit", p.Iterations, p.NotFormed)
+		}
+		// Whether the report gives the bootstrap's interval and P rests
+		// on it (BootstrapReadable).
+		if want := metrics.ResampleSize(v.frac, s.TestPoints); p.Iterations > 0 && v.frac > 0 && p.ResampleSize != want {
+			v.fail(pa+".resample_size", "is %d, but a resample of %s of the %d test points draws %d", p.ResampleSize, fmtG(v.frac), s.TestPoints, want)
 		}
 	}
 	for k, t := range s.Thresholds {

@@ -70,6 +70,8 @@ func TestValidateRefuses(t *testing.T) {
 		{"partial ROC ratio above 2", func(r *Results) { firstScored(r).PartialROC[0].Ratio = 1.7e308 }, "partial_roc[0].ratio: 1.7e+308 is outside [0, 2]"},
 		{"partial ROC interval above 2", func(r *Results) { firstScored(r).PartialROC[0].CIHigh = 2.5 }, "ci_high: 2.5 is outside [0, 2]"},
 		{"AUC resample SD above 1", func(r *Results) { firstScored(r).AUCBootSD = 3 }, "auc_boot_sd: 3 is outside [0, 1]"},
+		// The report gives the bootstrap's interval and P by it.
+		{"resample size edited", func(r *Results) { firstScored(r).PartialROC[0].ResampleSize = 40 }, "partial_roc[0].resample_size: is 40, but a resample of 0.5 of the"},
 		// Accepted before; found by editing results.json at random.
 		{"paired negative SE", func(r *Results) { r.Paired[0].SE = -0.1 }, ".se: -0.1"},
 		{"paired negative resamples", func(r *Results) { r.Paired[0].Resamples = -4 }, ".resamples: -4"},

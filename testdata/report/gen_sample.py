@@ -410,7 +410,9 @@ for name, M in MODELS:
         used = own.sum(axis=1) > 0
         paired_auc = (own[used] * F).sum(axis=1) / own[used].sum(axis=1)
         auc_tr = float(auc_pf(ptr, bv, bw).mean())
-        nres = int(math.ceil(FRAC * len(pv)))
+        # each resample's size, as metrics.ResampleSize: max(1, round(f n)),
+        # halves rounded away from zero
+        nres = max(1, int(math.floor(FRAC * len(pv) + 0.5)))
         draws = [rng.integers(0, len(pv), size=nres) for _ in range(ITER)]
         prs = []
         for e in E_LIST:
@@ -421,7 +423,7 @@ for name, M in MODELS:
                    "discrete_defined": False, "discrete_x_e": 0, "discrete_ratio": 0,
                    "ratio": r12(full if full is not None else 0),
                    "ratio_mean": 0, "ratio_sd": 0, "ci_low": 0, "ci_high": 0, "p_value": 0,
-                   "iterations": ITER, "iterations_not_formed": ITER - len(ok)}
+                   "iterations": ITER, "iterations_not_formed": ITER - len(ok), "resample_size": nres}
             if why:
                 rec["undefined_reason"] = {"tie": "the 1 - E crossing falls among test points tied at one value",
                                            "null": "the curve reaches 1 - E only at x = 1"}[why]
@@ -592,7 +594,7 @@ counts = {"train": len(train), "test": len(test),
           "nodata": sum(q["status"] == "nodata" for q in points)}
 
 results = {
-    "schema_version": 4,
+    "schema_version": 5,
     "software": {"name": "areasweep", "version": "0.1.0-test"},
     "seed": 20240611,
     "settings": {"region_buffers_km": [50, 100, 200], "point_buffers_km": [25, 100, 400],

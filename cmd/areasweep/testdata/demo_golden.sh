@@ -118,6 +118,13 @@
 #     quoting them, and results.json's schema_version, 3 to 4 (the
 #     intervals' meaning changed); no position, verdict, ranking or
 #     reading changed, and every score is unchanged;
+#   - rewritten when each partial ROC record took resample_size (the test
+#     points each resample of the published bootstrap draws; whether the
+#     report gives its interval and P now rests on it rather than on the
+#     extent's test points): results.json's partial ROC records and its
+#     schema_version, 4 to 5; the demo's resamples draw 40 to 45 points,
+#     so every interval and P is given as before, and every score,
+#     scores.csv and every sentence are unchanged;
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -85,7 +85,7 @@ func scoresCSV(r *report.Results) []byte {
 				continue
 			}
 			row("partial_roc_ratio_resample_mean", e, "", p.RatioMean)
-			if !report.BootstrapReadable(p, sc.TestPoints) {
+			if !report.BootstrapReadable(p) {
 				// Fewer test points than the cut-off (or one resample
 				// formed): no percentiles and no P, as in the report.
 				continue

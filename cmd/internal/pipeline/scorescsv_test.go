@@ -64,7 +64,7 @@ func TestScoresCSV(t *testing.T) {
 			rows++ // the ratio, or partial_roc_undefined
 			if pr.Iterations > pr.NotFormed {
 				rows++ // the resamples' mean
-				if report.BootstrapReadable(pr, sc.TestPoints) {
+				if report.BootstrapReadable(pr) {
 					rows += 3 // their percentiles and P
 				}
 			}
@@ -112,20 +112,25 @@ func TestScoresCSVUnformedResamples(t *testing.T) {
 		wantRows  []string
 		wantValue map[string]float64
 	}{
-		{"undefined, none formed", report.PartialROC{E: 0.05, Iterations: 500, NotFormed: 500},
+		{"undefined, none formed", report.PartialROC{E: 0.05, Iterations: 500, NotFormed: 500, ResampleSize: 10},
 			[]string{"partial_roc_undefined"}, map[string]float64{"partial_roc_undefined": 1}},
-		{"undefined, one formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.2, CIHigh: 1.2, PValue: 0, Iterations: 500, NotFormed: 499},
+		{"undefined, one formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.2, CIHigh: 1.2, PValue: 0, Iterations: 500, NotFormed: 499, ResampleSize: 10},
 			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean"},
 			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2}},
-		{"undefined, too few formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples + 1},
+		{"undefined, too few formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples + 1, ResampleSize: 10},
 			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean"},
 			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2}},
-		{"undefined, some formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples},
+		{"undefined, some formed", report.PartialROC{E: 0.05, RatioMean: 1.2, CILow: 1.1, CIHigh: 1.4, PValue: 0.02, Iterations: 500, NotFormed: 500 - report.MinPercentileResamples, ResampleSize: 10},
 			[]string{"partial_roc_undefined", "partial_roc_ratio_resample_mean", "partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"},
 			map[string]float64{"partial_roc_undefined": 1, "partial_roc_ratio_resample_mean": 1.2, "partial_roc_resample_p2_5": 1.1, "partial_roc_resample_p97_5": 1.4, "partial_roc_p_value": 0.02}},
-		{"defined, all formed, P 0", report.PartialROC{E: 0.05, Defined: true, Ratio: 1.3, RatioMean: 1.25, CILow: 1.1, CIHigh: 1.5, PValue: 0, Iterations: 500},
+		{"defined, all formed, P 0", report.PartialROC{E: 0.05, Defined: true, Ratio: 1.3, RatioMean: 1.25, CILow: 1.1, CIHigh: 1.5, PValue: 0, Iterations: 500, ResampleSize: 10},
 			[]string{"partial_roc_ratio", "partial_roc_ratio_resample_mean", "partial_roc_resample_p2_5", "partial_roc_resample_p97_5", "partial_roc_p_value"},
 			map[string]float64{"partial_roc_ratio": 1.3, "partial_roc_ratio_resample_mean": 1.25, "partial_roc_resample_p2_5": 1.1, "partial_roc_resample_p97_5": 1.5, "partial_roc_p_value": 0}},
+		// Every resample formed, but of 9 points (a small --fraction):
+		// no percentiles or P either.
+		{"defined, all formed, 9 points a resample", report.PartialROC{E: 0.05, Defined: true, Ratio: 1.3, RatioMean: 1.25, CILow: 1.1, CIHigh: 1.5, PValue: 0, Iterations: 500, ResampleSize: 9},
+			[]string{"partial_roc_ratio", "partial_roc_ratio_resample_mean"},
+			map[string]float64{"partial_roc_ratio": 1.3, "partial_roc_ratio_resample_mean": 1.25}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			r := &report.Results{

@@ -8,8 +8,8 @@ import (
 	"areasweep/report"
 )
 
-// TestScoresCSVBootstrapTooFew: on an extent with fewer test points than
-// report.MinPairedPoints the published bootstrap's percentiles and P are
+// TestScoresCSVBootstrapTooFew: where a resample draws fewer test points
+// than report.MinPairedPoints the published bootstrap's percentiles and P are
 // left out of scores.csv, as from the report (with one test point every
 // resample is that point: a P of 0 read as "< 1/B" and an interval of
 // zero width; an audit of edge cases). The full-sample ratio and the resamples' mean
@@ -24,6 +24,9 @@ func TestScoresCSVBootstrapTooFew(t *testing.T) {
 		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" && len(sc.PartialROC) > 0 {
 			sc.TestPoints = 1
 			sc.PartialROC[0].Defined, sc.PartialROC[0].NotFormed = true, 0
+			for j := range sc.PartialROC {
+				sc.PartialROC[j].ResampleSize = 1
+			}
 			found = true
 		}
 	}
