@@ -270,7 +270,11 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 	// its structure method, which keeps all of the area a zero-width
 	// buffer would drop from a bow-tie and also the overlap of two parts
 	// that overlap.
-	if bad, why := invalidFeatures(layer); len(bad) > 0 {
+	bad, why, err := invalidFeatures(path, layer)
+	if err != nil {
+		return warns, err
+	}
+	if len(bad) > 0 {
 		s.invalid = map[int]bool{}
 		for _, n := range bad {
 			s.invalid[n] = true
@@ -835,7 +839,7 @@ func nullFeatures(ds *godal.Dataset, from, isNull string) []int {
 // invalidFeatures returns the 1-based numbers of the layer's features whose
 // geometry is not valid, and for each why (validity: GEOS's reason in our
 // words, or "").
-func invalidFeatures(layer godal.Layer) (bad []int, why []string) {
+func invalidFeatures(path string, layer godal.Layer) (bad []int, why []string, err error) {
 	layer.ResetReading()
 	for n := 1; ; n++ {
 		f := layer.NextFeature()
@@ -844,12 +848,81 @@ func invalidFeatures(layer godal.Layer) (bad []int, why []string) {
 		}
 		if g := f.Geometry(); !noGeometry(g) {
 			if ok, reason := validity(g); !ok {
+				if p, found := nonFiniteVertex(g); found {
+					f.Close()
+					return nil, nil, fmt.Errorf("extent: %s feature %d has a vertex with a coordinate that is not a finite number (%g %g, in the layer's coordinates); its outline is unknown there: fix or delete the vertex in a GIS", path, n, p[0], p[1])
+				}
 				bad, why = append(bad, n), append(why, reason)
 			}
 		}
 		f.Close()
 	}
-	return bad, why
+	return bad, why, nil
+}
+
+// nonFiniteVertex returns the first vertex of g with a NaN or infinite
+// coordinate. MakeValid drops such a vertex, and what is left (a triangle
+// of a square with one vertex NaN) is no outline anyone drew, so a
+// feature holding one is refused rather than repaired.
+func nonFiniteVertex(g *godal.Geometry) (orb.Point, bool) {
+	b, err := g.WKB()
+	if err != nil {
+		return orb.Point{}, false
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return orb.Point{}, false
+	}
+	return firstNonFinite(og)
+}
+
+func firstNonFinite(g orb.Geometry) (orb.Point, bool) {
+	bad := func(p orb.Point) bool {
+		return math.IsNaN(p[0]) || math.IsInf(p[0], 0) || math.IsNaN(p[1]) || math.IsInf(p[1], 0)
+	}
+	points := func(ps []orb.Point) (orb.Point, bool) {
+		for _, p := range ps {
+			if bad(p) {
+				return p, true
+			}
+		}
+		return orb.Point{}, false
+	}
+	switch v := g.(type) {
+	case orb.Point:
+		return v, bad(v)
+	case orb.MultiPoint:
+		return points(v)
+	case orb.LineString:
+		return points(v)
+	case orb.Ring:
+		return points(v)
+	case orb.MultiLineString:
+		for _, l := range v {
+			if p, ok := points(l); ok {
+				return p, true
+			}
+		}
+	case orb.Polygon:
+		for _, r := range v {
+			if p, ok := points(r); ok {
+				return p, true
+			}
+		}
+	case orb.MultiPolygon:
+		for _, pg := range v {
+			if p, ok := firstNonFinite(pg); ok {
+				return p, true
+			}
+		}
+	case orb.Collection:
+		for _, c := range v {
+			if p, ok := firstNonFinite(c); ok {
+				return p, true
+			}
+		}
+	}
+	return orb.Point{}, false
 }
 
 // repairWarning is the warning for the features bad of path repaired with
