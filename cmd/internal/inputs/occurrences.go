@@ -262,13 +262,20 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 
 	lim := newLimitedReader(crLines(r), name, MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
-	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
+	if b, _ := br.Peek(4); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)
+	} else if bytes.HasPrefix(b, []byte{0xFF, 0xFE, 0, 0}) || bytes.HasPrefix(b, []byte{0, 0, 0xFE, 0xFF}) {
+		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-32 byte-order mark; "+
+			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
 	} else if len(b) >= 2 && ((b[0] == 0xFF && b[1] == 0xFE) || (b[0] == 0xFE && b[1] == 0xFF)) {
 		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-16 byte-order mark; "+
 			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
 	}
 	if head, _ := br.Peek(512); bytes.IndexByte(head, 0) >= 0 {
+		if order := utf16WithoutBOM(head); order != "" && binaryKind(head) == "" {
+			return nil, perr(0, "", fmt.Errorf("%w: it is UTF-16 text (%s) without a byte-order mark: every other byte is 0; "+
+				"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding, order))
+		}
 		return nil, perr(0, "", fmt.Errorf("%w: it is a binary file%s, not a text table; "+
 			"give the occurrence table as CSV or tab-separated text (in a spreadsheet: save as \"CSV UTF-8\")", ErrEncoding, binaryKind(head)))
 	}
@@ -447,6 +454,34 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// utf16WithoutBOM returns "little-endian" or "big-endian" when head reads
+// as UTF-16 text of mostly ASCII letters without a byte-order mark (as R's
+// write.csv(fileEncoding = "UTF-16LE") writes it): nine in ten of its odd
+// bytes are 0 (little-endian) and none of its even ones, or the other way
+// round; "" otherwise. Such a file was named "a binary file".
+func utf16WithoutBOM(head []byte) string {
+	pairs := len(head) / 2
+	if pairs < 2 {
+		return ""
+	}
+	var evenZero, oddZero int
+	for i := 0; i < 2*pairs; i += 2 {
+		if head[i] == 0 {
+			evenZero++
+		}
+		if head[i+1] == 0 {
+			oddZero++
+		}
+	}
+	switch {
+	case evenZero == 0 && oddZero*10 >= pairs*9:
+		return "little-endian"
+	case oddZero == 0 && evenZero*10 >= pairs*9:
+		return "big-endian"
+	}
+	return ""
 }
 
 // binaryKind names the kind of binary file by its first bytes, as

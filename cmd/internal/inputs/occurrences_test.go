@@ -148,6 +148,13 @@ func errCases() []errCase {
 			contains: []string{`"abc"`, "quotes as ordinary characters", "line 2 is not valid CSV quoting"}},
 		{name: "utf16 le", in: "\xFF\xFEl\x00o\x00n\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-16", "CSV UTF-8"}},
 		{name: "utf16 be", in: "\xFE\xFF\x00l\x00o", is: ErrEncoding, line: 1},
+		// Without a byte-order mark (R's write.csv with fileEncoding
+		// "UTF-16LE" writes none) UTF-16 was named "a binary file", and a
+		// UTF-32 mark (FF FE 00 00) "a UTF-16 byte-order mark".
+		{name: "utf16 le without bom", in: "l\x00o\x00n\x00,\x00l\x00a\x00t\x00,\x00r\x00o\x00l\x00e\x00\n\x00", is: ErrEncoding, contains: []string{"UTF-16 text (little-endian) without a byte-order mark", "CSV UTF-8"}},
+		{name: "utf16 be without bom", in: "\x00l\x00o\x00n\x00,\x00l\x00a\x00t\x00,\x00r\x00o\x00l\x00e\x00\n", is: ErrEncoding, contains: []string{"UTF-16 text (big-endian) without a byte-order mark"}},
+		{name: "utf32 le", in: "\xFF\xFE\x00\x00l\x00\x00\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-32 byte-order mark"}},
+		{name: "utf32 be", in: "\x00\x00\xFE\xFF\x00\x00\x00l", is: ErrEncoding, line: 1, contains: []string{"UTF-32 byte-order mark"}},
 		{name: "GeoTIFF", in: "II*\x00\b\x00\x00\x00\x14\x00\x00\x01\x03\x00,x", is: ErrEncoding, contains: []string{"binary file", "GeoTIFF", "CSV"}},
 		{name: "Excel workbook", in: "PK\x03\x04\x14\x00\x06\x00lon,lat,role", is: ErrEncoding, contains: []string{"Excel .xlsx", "CSV UTF-8"}},
 		{name: "shapefile", in: "\x00\x00\x27\x0a\x00\x00", is: ErrEncoding, contains: []string{"shapefile", "ogr2ogr -f CSV"}},
