@@ -391,6 +391,9 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			}
 			return strings.TrimSpace(row[c.index]), nil
 		}
+		if err := shiftedCoordinates(row, len(hdr), cols, delim); err != nil {
+			return nil, perr(line, "", err)
+		}
 		if repeatsHeader(row, cols) {
 			// Two tables joined into one (cat a.csv b.csv): the second
 			// one's header is a record that no column can read.
@@ -514,6 +517,25 @@ func tooLarge(err error, perr func(int, string, error) error, name string) error
 		return perr(0, "", err)
 	}
 	return fmt.Errorf("inputs: reading %s: %w", name, err)
+}
+
+// shiftedCoordinates refuses a row with more cells than the header (the
+// extra ones not all blank) when the role column comes before a
+// coordinate column. A delimiter inside an unquoted cell (a decimal comma,
+// 12,5, in a comma-separated table; a comma in a locality) splits the cell
+// in two and shifts every cell after it: with the role first, the role
+// still reads and the coordinates are read from the wrong cells, which may
+// hold numbers in range ("train,12,5,45,3" under role,lon,lat read as
+// longitude 12, latitude 5). With the role after both coordinates a shift
+// before it makes the role unreadable, and one after it harms nothing.
+func shiftedCoordinates(row []string, header int, cols columns, delim rune) error {
+	if len(row) <= header || allBlank(row[header:]) || cols.role.index > max(cols.lon.index, cols.lat.index) {
+		return nil
+	}
+	return fmt.Errorf("%w: the line has %d cells but the header only %d, and the role column (%q) comes before the coordinates: "+
+		"a %s inside a cell that is not in double quotes (a decimal comma such as 12,5, or one in a text) splits it in two and shifts the cells after it, "+
+		"so the coordinates would be read from the wrong cells; put such cells in double quotes, write decimals with a dot, or delete the extra cells",
+		ErrMalformed, len(row), header, cols.role.name, delimiterName(delim))
 }
 
 // commaHint explains a line with more cells than the header in a
