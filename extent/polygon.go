@@ -481,6 +481,18 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 		return "", fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
 	}
 	id := v.String()
+	switch v.Type() {
+	case godal.FTInt, godal.FTInt64, godal.FTReal, godal.FTString:
+	case godal.FTDate, godal.FTTime, godal.FTDateTime:
+		// godal gives these no text (""), so that every feature was one
+		// unit of id "": named as OGR writes them, without a time zone.
+		if t := v.DateTime(); t != nil && v.IsSet() {
+			id = t.Format(map[godal.FieldType]string{godal.FTDate: "2006/01/02", godal.FTTime: "15:04:05", godal.FTDateTime: "2006/01/02 15:04:05"}[v.Type()])
+		}
+	default:
+		// Lists and binary data have no text either, and name no unit.
+		return "", fmt.Errorf("extent: %s field %q holds %s, which cannot name a unit; give the field that holds the units' ids (text or numbers)", path, field, fieldTypeName(v.Type()))
+	}
 	if v.Type() == godal.FTReal && v.IsSet() {
 		// godal writes a real with six decimals ("%f"), which gave two
 		// ids that differ further on (1.0000001 and 1.0000004) one unit:
@@ -502,10 +514,25 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 		}
 		id = string(r)
 	}
-	if !v.IsSet() || (v.Type() == godal.FTString && strings.TrimSpace(id) == "") {
+	if !v.IsSet() || strings.TrimSpace(id) == "" {
 		return "", fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
 	}
 	return id, nil
+}
+
+// fieldTypeName names a field type that cannot name a unit.
+func fieldTypeName(t godal.FieldType) string {
+	switch t {
+	case godal.FTIntList, godal.FTInt64List:
+		return "lists of whole numbers"
+	case godal.FTRealList:
+		return "lists of numbers"
+	case godal.FTStringList:
+		return "lists of texts"
+	case godal.FTBinary:
+		return "binary data"
+	}
+	return "values of an unknown kind"
 }
 
 // onGrid puts each id's geometry in the grid's CRS and returns the units
