@@ -38,3 +38,42 @@ func TestUnitIDOfDatesAndLists(t *testing.T) {
 		t.Errorf("a list field: %v", err)
 	}
 }
+
+// TestUnitIDsDifferingInSpaces: ids "A" and " A" (or "A" and "A" with a
+// no-break space, U+00A0) are two units, as the README says features are
+// grouped by their value; the run now warns, naming both, where it kept
+// them apart without a word.
+func TestUnitIDsDifferingInSpaces(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	sq := func(x, y float64) [][2]float64 {
+		return [][2]float64{{x, y}, {x + 1, y}, {x + 1, y + 1}, {x, y + 1}, {x, y}}
+	}
+	for _, tc := range []struct {
+		name string
+		ids  []string
+		want string
+	}{
+		{"leading space", []string{"A", " A", "B"}, `("A" and " A")`},
+		{"no-break space", []string{"A\u00a0", "B", "A"}, `("A\u00a0" and "A")`},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			path := writeGeoJSON(t, dir, tc.name+".geojson", tc.ids, [][][2]float64{sq(0.5, 0.5), sq(2.5, 0.5), sq(0.5, 2.5)})
+			units, warns, err := ReadUnits(path, "id", g)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(units) != 3 {
+				t.Errorf("%d units, want 3 (the ids are kept as they are)", len(units))
+			}
+			if !strings.Contains(strings.Join(warns, "\n"), "differ only in the spaces around them are kept as separate units "+tc.want) {
+				t.Errorf("warnings %q lack %s", warns, tc.want)
+			}
+		})
+	}
+	// Ids that differ otherwise draw no such warning.
+	path := writeGeoJSON(t, dir, "plain.geojson", []string{"A", "a", "B"}, [][][2]float64{sq(0.5, 0.5), sq(2.5, 0.5), sq(0.5, 2.5)})
+	if _, warns, err := ReadUnits(path, "id", g); err != nil || len(warns) != 0 {
+		t.Errorf("ids A, a, B: warnings %q, error %v", warns, err)
+	}
+}

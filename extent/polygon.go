@@ -96,11 +96,45 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if err != nil {
 		return nil, warns, err
 	}
+	if w := spacedIDs(path, src.field, order); w != "" {
+		warns = append(warns, w)
+	}
 	units, err := src.onGrid(byID, order, g)
 	if err != nil {
 		return nil, warns, err
 	}
 	return units, warns, nil
+}
+
+// spacedIDs warns of ids that differ only in white space around them
+// ("A" and " A", or "A" with a no-break space after it, as a spreadsheet
+// or a padded text field leaves them): they are two units, each occupied
+// or not on its own, which is seldom what was meant. "" when there are
+// none.
+func spacedIDs(path, field string, ids []string) string {
+	first := map[string]string{}
+	var pairs []string
+	n := 0
+	for _, id := range ids {
+		key := strings.TrimSpace(id)
+		if prev, ok := first[key]; ok {
+			n++
+			if len(pairs) < 3 {
+				pairs = append(pairs, fmt.Sprintf("%q and %q", prev, id))
+			}
+			continue
+		}
+		first[key] = id
+	}
+	if n == 0 {
+		return ""
+	}
+	more := ""
+	if n > len(pairs) {
+		more = fmt.Sprintf(" and %d more", n-len(pairs))
+	}
+	return fmt.Sprintf("%s: ids in field %q that differ only in the spaces around them are kept as separate units (%s%s); if they name one unit, make them equal",
+		path, field, strings.Join(pairs, ", "), more)
 }
 
 // polygonSource is the polygon layer readUnits reads, open and checked:
