@@ -318,6 +318,8 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	delim := detectDelimiter(header)
 	if declared != 0 {
 		delim = declared
+	} else if delim == ',' {
+		delim = commaInHeaderName(header)
 	}
 	if plain && delim == '\t' {
 		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
@@ -547,6 +549,39 @@ func commaHint(delim rune, cells, header int) string {
 	}
 	return fmt.Sprintf(". The line has %d cells but the header only %d: in a comma-separated table a decimal comma (12,5) splits a number in two; "+
 		"write decimals with a dot, or save the table with semicolons as the delimiter (then 12,5 is read as 12.5)", cells, header)
+}
+
+// commaInHeaderName returns ';' or '\t' for a header that holds a comma
+// but is delimited by semicolons or tabs, as Excel in a locale with
+// decimal commas writes a column named "site, notes" (quoting only cells
+// that hold the delimiter): read at its commas it has no longitude and
+// latitude column, read at its semicolons (or tabs) it has both. It
+// returns ',' otherwise.
+func commaInHeaderName(header []byte) rune {
+	hasCoords := func(delim rune) bool {
+		cr := csv.NewReader(bytes.NewReader(header))
+		cr.Comma, cr.FieldsPerRecord, cr.LazyQuotes = delim, -1, true
+		rec, err := cr.Read()
+		if err != nil {
+			return false
+		}
+		lon, lat := false, false
+		for _, h := range rec {
+			key := strings.ToLower(strings.TrimSpace(h))
+			lon = lon || contains(lonNames, key)
+			lat = lat || contains(latNames, key)
+		}
+		return lon && lat
+	}
+	if hasCoords(',') {
+		return ','
+	}
+	for _, d := range []rune{';', '\t'} {
+		if bytes.ContainsRune(header, d) && hasCoords(d) {
+			return d
+		}
+	}
+	return ','
 }
 
 // column is a header field found by name.

@@ -62,6 +62,12 @@ func okCases() []okCase {
 		// unreadable), or when its extra cells are blank.
 		{name: "unquoted comma in a note after the role", in: "lon,lat,role,note\n1.5,2.5,train,near a river, north bank\n-3,4,test,x\n", geographic: true, want: twoRecs},
 		{name: "role first, blank extra cells", in: "role,lon,lat\ntrain,1.5,2.5,,\ntest,-3,4\n", geographic: true, want: twoRecs},
+		// A header delimited by semicolons or tabs with a comma in a
+		// column's name (Excel quotes only cells holding the delimiter)
+		// was read at its commas and refused for lacking coordinates.
+		{name: "semicolon header with a comma in a name", in: "lon;lat;role;site, notes\n1,5;2,5;train;a, b\n-3;4;test;c\n", geographic: true, want: twoRecs},
+		{name: "quoted semicolon header with a comma in a name", in: "\"lon\";\"lat\";\"role\";\"site, notes\"\n1,5;2,5;train;\"a, b\"\n-3;4;test;c\n", geographic: true, want: twoRecs},
+		{name: "tab header with a comma in a name", in: "lon\tlat\trole\tsite, notes\n1.5\t2.5\ttrain\ta, b\n-3\t4\ttest\tc\n", geographic: true, want: twoRecs},
 		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true, want: twoRecs},
 		{name: "quoted cells", in: "\"lon\",\"lat\",\"role\"\n\"1.5\",\"2.5\",\"train\"\n\"-3\",\"4\",\"test\"\n", geographic: true, want: twoRecs},
 		{name: "comma delimiter quoted cell with comma", in: "lon,lat,role,note\n1.5,2.5,train,\"a, b\"\n-3,4,test,c\n", geographic: true, want: twoRecs},
