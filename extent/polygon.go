@@ -587,8 +587,19 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 				geom = d
 			}
 		}
+		hadCentre := false
+		if lsr.Geographic() && !g.Geographic {
+			hadCentre = holdsCentreCell(geom, g, lsr)
+		}
 		if err := geom.Reproject(g.srs); err != nil {
 			return nil, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
+		}
+		if hadCentre && !holdsCentre(geom, g) {
+			// A polygon round the whole globe (-180 to 180, pole to pole)
+			// has no outline in a projected CRS: projected, it was a
+			// sliver along the antimeridian, and the run said the region
+			// was "smaller or thinner than the cells".
+			return nil, fmt.Errorf("extent: %s covers the raster's centre cell in its own CRS but not once projected to the raster's CRS: its outline runs round the globe (along 180 degrees of longitude or over a pole) or beyond what the raster's projection can show; clip it to the study area first (e.g. ogr2ogr -clipsrc WEST SOUTH EAST NORTH OUT.gpkg %s, in degrees)", unitName(path, id), path)
 		}
 		if !lsr.Geographic() && g.Geographic {
 			// A projected layer has no antimeridian of its own: its edges
@@ -606,6 +617,52 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 		units = append(units, Unit{ID: id, Shape: sh, geom: geom})
 	}
 	return units, nil
+}
+
+// centreCell returns the raster's centre cell as a polygon in srs (nil:
+// in the grid's CRS), or its centre point when point is set.
+func centreCell(g *Grid, srs *godal.SpatialRef, point bool) (*godal.Geometry, error) {
+	gt := g.GeoTransform
+	c, r := float64(g.Width/2), float64(g.Height/2)
+	x0, y0 := gt[0]+c*gt[1], gt[3]+r*gt[5]
+	x1, y1 := x0+gt[1], y0+gt[5]
+	wkt := fmt.Sprintf("POLYGON ((%.17g %.17g, %.17g %.17g, %.17g %.17g, %.17g %.17g, %.17g %.17g))", x0, y0, x1, y0, x1, y1, x0, y1, x0, y0)
+	if point {
+		wkt = fmt.Sprintf("POINT (%.17g %.17g)", (x0+x1)/2, (y0+y1)/2)
+	}
+	cell, err := godal.NewGeometryFromWKT(wkt, g.srs)
+	if err != nil {
+		return nil, err
+	}
+	if srs != nil {
+		if err := cell.Reproject(srs); err != nil {
+			cell.Close()
+			return nil, err
+		}
+	}
+	return cell, nil
+}
+
+// holdsCentreCell reports whether geom, in the layer's CRS srs, holds the
+// whole of the raster's centre cell.
+func holdsCentreCell(geom *godal.Geometry, g *Grid, srs *godal.SpatialRef) bool {
+	cell, err := centreCell(g, srs, false)
+	if err != nil {
+		return false
+	}
+	defer cell.Close()
+	return geom.Contains(cell)
+}
+
+// holdsCentre reports whether geom, in the grid's CRS, holds the centre
+// of the raster's centre cell (not on its edge).
+func holdsCentre(geom *godal.Geometry, g *Grid) bool {
+	pt, err := centreCell(g, nil, true)
+	if err != nil {
+		return true
+	}
+	defer pt.Close()
+	return geom.Contains(pt)
 }
 
 // featureList lists feature numbers for one warning about them all: the
