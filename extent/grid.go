@@ -202,7 +202,13 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	gt, err := ds.GeoTransform()
 	if err != nil {
-		if n := len(ds.GCPs()); n > 0 {
+		if n := len(ds.GCPs()); n == 1 {
+			// GDAL reads a GeoTIFF with a tie point and no cell size, as
+			// one whose cell size was written as 0 is stored, as one
+			// ground control point: "by 1 ground control points" and
+			// advice to warp it, which needs three.
+			return nil, fmt.Errorf("extent: %s is georeferenced by one tie point only, without a cell size (as a GeoTIFF written with a cell size of 0 holds it); give it its bounds, e.g. gdal_translate -a_ullr ULX ULY LRX LRY IN OUT with the corners' coordinates", path)
+		} else if n > 1 {
 			return nil, fmt.Errorf("extent: %s is georeferenced by %d ground control points, not by a grid (geotransform); warp it onto a north-up grid first (e.g. gdalwarp -t_srs EPSG:4326 IN OUT)", path, n)
 		}
 		return nil, fmt.Errorf("extent: %s has no geotransform; it must be a georeferenced raster (check it with gdalinfo: it prints no Origin and Pixel Size)", path)

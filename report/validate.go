@@ -434,8 +434,15 @@ func (v *validator) settings(s Settings) {
 	for i, t := range s.FixedThresholds {
 		v.finite(fmt.Sprintf("settings.fixed_thresholds[%d]", i), t)
 	}
-	if s.Iterations < 0 {
-		v.fail("settings.iterations", "%d is negative", s.Iterations)
+	// A run draws at least one resample of each kind (--iterations is at
+	// least 1, and the paired resamples are as many): 0 or fewer, edited
+	// in, read in the methods as "a bootstrap of 0 resamples ... p is not
+	// resolved below 1/0" and "from -5 full-size resamples".
+	if s.Iterations < 1 {
+		v.fail("settings.iterations", "%d is below 1; a run draws at least 1 resample (as --iterations takes it)", s.Iterations)
+	}
+	if s.PairedResamples < 1 {
+		v.fail("settings.paired_resamples", "%d is below 1; a run draws as many paired resamples as --iterations, at least 1", s.PairedResamples)
 	}
 	v.unit("settings.resample_fraction", s.ResampleFraction)
 	v.nonNeg("settings.boyce_window", s.BoyceWindow)

@@ -119,6 +119,14 @@ func TestValidateRefuses(t *testing.T) {
 		{"an E more in the settings", func(r *Results) { r.Settings.E = append(r.Settings.E, 0.2) }, ".partial_roc: holds E [0.05 0.1], but settings.e is [0.05 0.1 0.2]"},
 		{"a partial ROC entry removed", func(r *Results) { s := firstScored(r); s.PartialROC = s.PartialROC[1:] }, ".partial_roc: holds E [0.1], but settings.e is [0.05 0.1]"},
 		{"a partial ROC entry's E changed", func(r *Results) { firstScored(r).PartialROC[0].E = 0.07 }, ".partial_roc: holds E [0.07 0.1]"},
+		// Accepted before, found by editing a run's results.json by hand:
+		// the methods read "a bootstrap of 0 resamples ... p is not
+		// resolved below 1/0" and "from -5 full-size resamples"; a run
+		// writes both at least 1 (--iterations is at least 1).
+		{"no iterations", func(r *Results) { r.Settings.Iterations = 0 }, "settings.iterations: 0 is below 1"},
+		{"negative iterations", func(r *Results) { r.Settings.Iterations = -2 }, "settings.iterations: -2 is below 1"},
+		{"no paired resamples", func(r *Results) { r.Settings.PairedResamples = 0 }, "settings.paired_resamples: 0 is below 1"},
+		{"negative paired resamples", func(r *Results) { r.Settings.PairedResamples = -5 }, "settings.paired_resamples: -5 is below 1"},
 		{"point outside with a cell", func(r *Results) {
 			r.Points[0].Status, r.Points[0].Row, r.Points[0].Col = "outside_raster", 2, 3
 		}, "a point outside the raster has row -1 and col -1"},

@@ -145,6 +145,10 @@ func TestBadRastersAndLayers(t *testing.T) {
 	}
 	southUp := f.rasterWith(t, "southup.tif", [6]float64{10, 0.25, 0, 40, 0, 0.25}, wgs84WKT, ridge)
 	flat := f.rasterWith(t, "flat.tif", [6]float64{10, 0.25, 0, 48, 0, 0}, wgs84WKT, ridge)
+	// A cell width of 0: GDAL writes a tie point without a cell size and
+	// reads it back as one ground control point; the message said "by 1
+	// ground control points" and advised gdalwarp, which needs three.
+	noWidth := f.rasterWith(t, "nowidth.tif", [6]float64{10, 0, 0, 48, 0, -0.25}, wgs84WKT, ridge)
 
 	// Finite values whose range overflows: the report's axes were drawn
 	// over an infinite span, and the run never ended.
@@ -298,6 +302,7 @@ func TestBadRastersAndLayers(t *testing.T) {
 		{name: "model whose values' range overflows", args: f.withModel(hugeRange), code: 2, words: []string{"model m", "hugerange.tif run from -1.7e+308 to 1.7e+308", "beyond the largest number", "gdal_calc.py"}},
 		{name: "null whose values' range overflows", args: f.run("--null", "n="+hugeRange), code: 2, words: []string{"null n", "hugerange.tif run from"}},
 		{name: "model georeferenced by ground control points", args: f.withModel(gcp), code: 2, words: []string{"model m", "gcp.tif", "3 ground control points", "gdalwarp"}},
+		{name: "model with cells of no width", args: f.withModel(noWidth), code: 2, words: []string{"model m", "nowidth.tif", "one tie point only, without a cell size", "gdal_translate -a_ullr"}},
 		{name: "model south-up", args: f.withModel(southUp), code: 2, words: []string{"model m", "southup.tif", "rows from south to north", "gdalwarp"}},
 		{name: "model with cells of no height", args: f.withModel(flat), code: 2, words: []string{"model m", "flat.tif", "0.25 x 0", "no width or no height"}},
 		{name: "model with a damaged compressed tile", args: f.withModel(corruptTile), code: 2, words: []string{"model m", "corrupt.tif", "the block at column 16 row 16", "its compressed data cannot be decoded", "damaged"}},

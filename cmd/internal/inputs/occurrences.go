@@ -262,13 +262,20 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 
 	lim := newLimitedReader(crLines(r), name, MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
-	if b, _ := br.Peek(3); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
+	if b, _ := br.Peek(4); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)
+	} else if bytes.HasPrefix(b, []byte{0xFF, 0xFE, 0, 0}) || bytes.HasPrefix(b, []byte{0, 0, 0xFE, 0xFF}) {
+		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-32 byte-order mark; "+
+			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
 	} else if len(b) >= 2 && ((b[0] == 0xFF && b[1] == 0xFE) || (b[0] == 0xFE && b[1] == 0xFF)) {
 		return nil, perr(1, "", fmt.Errorf("%w: it starts with a UTF-16 byte-order mark; "+
 			"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding))
 	}
 	if head, _ := br.Peek(512); bytes.IndexByte(head, 0) >= 0 {
+		if order := utf16WithoutBOM(head); order != "" && binaryKind(head) == "" {
+			return nil, perr(0, "", fmt.Errorf("%w: it is UTF-16 text (%s) without a byte-order mark: every other byte is 0; "+
+				"save the table as \"CSV UTF-8\" (or plain UTF-8 text) and run again", ErrEncoding, order))
+		}
 		return nil, perr(0, "", fmt.Errorf("%w: it is a binary file%s, not a text table; "+
 			"give the occurrence table as CSV or tab-separated text (in a spreadsheet: save as \"CSV UTF-8\")", ErrEncoding, binaryKind(head)))
 	}
@@ -311,6 +318,8 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	delim := detectDelimiter(header)
 	if declared != 0 {
 		delim = declared
+	} else if delim == ',' {
+		delim = commaInHeaderName(header)
 	}
 	if plain && delim == '\t' {
 		return readRecords(plainRows(bufio.NewReader(io.MultiReader(bytes.NewReader(pre), br)), name, perr), delim, perr, geographic)
@@ -384,6 +393,9 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			}
 			return strings.TrimSpace(row[c.index]), nil
 		}
+		if err := shiftedCoordinates(row, len(hdr), cols, delim); err != nil {
+			return nil, perr(line, "", err)
+		}
 		if repeatsHeader(row, cols) {
 			// Two tables joined into one (cat a.csv b.csv): the second
 			// one's header is a record that no column can read.
@@ -449,6 +461,34 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	return recs, nil
 }
 
+// utf16WithoutBOM returns "little-endian" or "big-endian" when head reads
+// as UTF-16 text of mostly ASCII letters without a byte-order mark (as R's
+// write.csv(fileEncoding = "UTF-16LE") writes it): nine in ten of its odd
+// bytes are 0 (little-endian) and none of its even ones, or the other way
+// round; "" otherwise. Such a file was named "a binary file".
+func utf16WithoutBOM(head []byte) string {
+	pairs := len(head) / 2
+	if pairs < 2 {
+		return ""
+	}
+	var evenZero, oddZero int
+	for i := 0; i < 2*pairs; i += 2 {
+		if head[i] == 0 {
+			evenZero++
+		}
+		if head[i+1] == 0 {
+			oddZero++
+		}
+	}
+	switch {
+	case evenZero == 0 && oddZero*10 >= pairs*9:
+		return "little-endian"
+	case oddZero == 0 && evenZero*10 >= pairs*9:
+		return "big-endian"
+	}
+	return ""
+}
+
 // binaryKind names the kind of binary file by its first bytes, as
 // " (a ... file)", or "" when it is not one a user is likely to give by
 // mistake.
@@ -481,6 +521,25 @@ func tooLarge(err error, perr func(int, string, error) error, name string) error
 	return fmt.Errorf("inputs: reading %s: %w", name, err)
 }
 
+// shiftedCoordinates refuses a row with more cells than the header (the
+// extra ones not all blank) when the role column comes before a
+// coordinate column. A delimiter inside an unquoted cell (a decimal comma,
+// 12,5, in a comma-separated table; a comma in a locality) splits the cell
+// in two and shifts every cell after it: with the role first, the role
+// still reads and the coordinates are read from the wrong cells, which may
+// hold numbers in range ("train,12,5,45,3" under role,lon,lat read as
+// longitude 12, latitude 5). With the role after both coordinates a shift
+// before it makes the role unreadable, and one after it harms nothing.
+func shiftedCoordinates(row []string, header int, cols columns, delim rune) error {
+	if len(row) <= header || allBlank(row[header:]) || cols.role.index > max(cols.lon.index, cols.lat.index) {
+		return nil
+	}
+	return fmt.Errorf("%w: the line has %d cells but the header only %d, and the role column (%q) comes before the coordinates: "+
+		"a %s inside a cell that is not in double quotes (a decimal comma such as 12,5, or one in a text) splits it in two and shifts the cells after it, "+
+		"so the coordinates would be read from the wrong cells; put such cells in double quotes, write decimals with a dot, or delete the extra cells",
+		ErrMalformed, len(row), header, cols.role.name, delimiterName(delim))
+}
+
 // commaHint explains a line with more cells than the header in a
 // comma-separated table: the usual cause is a decimal comma (12,5), which
 // splits a number into two cells.
@@ -490,6 +549,39 @@ func commaHint(delim rune, cells, header int) string {
 	}
 	return fmt.Sprintf(". The line has %d cells but the header only %d: in a comma-separated table a decimal comma (12,5) splits a number in two; "+
 		"write decimals with a dot, or save the table with semicolons as the delimiter (then 12,5 is read as 12.5)", cells, header)
+}
+
+// commaInHeaderName returns ';' or '\t' for a header that holds a comma
+// but is delimited by semicolons or tabs, as Excel in a locale with
+// decimal commas writes a column named "site, notes" (quoting only cells
+// that hold the delimiter): read at its commas it has no longitude and
+// latitude column, read at its semicolons (or tabs) it has both. It
+// returns ',' otherwise.
+func commaInHeaderName(header []byte) rune {
+	hasCoords := func(delim rune) bool {
+		cr := csv.NewReader(bytes.NewReader(header))
+		cr.Comma, cr.FieldsPerRecord, cr.LazyQuotes = delim, -1, true
+		rec, err := cr.Read()
+		if err != nil {
+			return false
+		}
+		lon, lat := false, false
+		for _, h := range rec {
+			key := strings.ToLower(strings.TrimSpace(h))
+			lon = lon || contains(lonNames, key)
+			lat = lat || contains(latNames, key)
+		}
+		return lon && lat
+	}
+	if hasCoords(',') {
+		return ','
+	}
+	for _, d := range []rune{';', '\t'} {
+		if bytes.ContainsRune(header, d) && hasCoords(d) {
+			return d
+		}
+	}
+	return ','
 }
 
 // column is a header field found by name.

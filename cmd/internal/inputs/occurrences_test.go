@@ -57,6 +57,17 @@ func okCases() []okCase {
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "no final newline", in: "lon,lat,role\n1.5,2.5,train\n-3,4,test", geographic: true, want: twoRecs},
 		{name: "spaces after commas", in: "lon, lat, role\n1.5, 2.5, train\n-3, 4, test\n", geographic: true, want: twoRecs},
+		// A line longer than the header is still read when the role comes
+		// after both coordinates (a shift before the role makes it
+		// unreadable), or when its extra cells are blank.
+		{name: "unquoted comma in a note after the role", in: "lon,lat,role,note\n1.5,2.5,train,near a river, north bank\n-3,4,test,x\n", geographic: true, want: twoRecs},
+		{name: "role first, blank extra cells", in: "role,lon,lat\ntrain,1.5,2.5,,\ntest,-3,4\n", geographic: true, want: twoRecs},
+		// A header delimited by semicolons or tabs with a comma in a
+		// column's name (Excel quotes only cells holding the delimiter)
+		// was read at its commas and refused for lacking coordinates.
+		{name: "semicolon header with a comma in a name", in: "lon;lat;role;site, notes\n1,5;2,5;train;a, b\n-3;4;test;c\n", geographic: true, want: twoRecs},
+		{name: "quoted semicolon header with a comma in a name", in: "\"lon\";\"lat\";\"role\";\"site, notes\"\n1,5;2,5;train;\"a, b\"\n-3;4;test;c\n", geographic: true, want: twoRecs},
+		{name: "tab header with a comma in a name", in: "lon\tlat\trole\tsite, notes\n1.5\t2.5\ttrain\ta, b\n-3\t4\ttest\tc\n", geographic: true, want: twoRecs},
 		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true, want: twoRecs},
 		{name: "quoted cells", in: "\"lon\",\"lat\",\"role\"\n\"1.5\",\"2.5\",\"train\"\n\"-3\",\"4\",\"test\"\n", geographic: true, want: twoRecs},
 		{name: "comma delimiter quoted cell with comma", in: "lon,lat,role,note\n1.5,2.5,train,\"a, b\"\n-3,4,test,c\n", geographic: true, want: twoRecs},
@@ -139,6 +150,13 @@ func errCases() []errCase {
 		{name: "thousands and decimal separators", in: "lon;lat;role\n1.234,5;1;train\n", is: ErrBadNumber, line: 2, field: "lon"},
 		{name: "bad role", in: "lon,lat,role\n1,2,train\n3,4,validation\n", is: ErrBadRole, line: 3, field: "role", contains: []string{`"validation"`, "train, training, test and testing"}},
 		{name: "empty role", in: "lon,lat,Role\n1,2,\n", is: ErrBadRole, line: 2, field: "Role", contains: []string{`found ""`}},
+		// With the role column first, a decimal comma in a comma-separated
+		// table shifted the coordinates and the role still read: "train,
+		// 12,5,45,3" under role,lon,lat was longitude 12, latitude 5.
+		{name: "decimal comma shifts coordinates after the role", in: "role,lon,lat\ntrain,12.5,45.3\ntest,12,5,45,3\n", is: ErrMalformed, line: 3,
+			contains: []string{"5 cells but the header only 3", `role column ("role") comes before the coordinates`, "decimal comma", "double quotes"}},
+		{name: "semicolon in a text before the coordinates", in: "role;site;lat;lon\ntrain;Big Rock; north;45,3;12,5\n", is: ErrMalformed, line: 2,
+			contains: []string{"a semicolon inside a cell"}},
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
@@ -148,6 +166,13 @@ func errCases() []errCase {
 			contains: []string{`"abc"`, "quotes as ordinary characters", "line 2 is not valid CSV quoting"}},
 		{name: "utf16 le", in: "\xFF\xFEl\x00o\x00n\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-16", "CSV UTF-8"}},
 		{name: "utf16 be", in: "\xFE\xFF\x00l\x00o", is: ErrEncoding, line: 1},
+		// Without a byte-order mark (R's write.csv with fileEncoding
+		// "UTF-16LE" writes none) UTF-16 was named "a binary file", and a
+		// UTF-32 mark (FF FE 00 00) "a UTF-16 byte-order mark".
+		{name: "utf16 le without bom", in: "l\x00o\x00n\x00,\x00l\x00a\x00t\x00,\x00r\x00o\x00l\x00e\x00\n\x00", is: ErrEncoding, contains: []string{"UTF-16 text (little-endian) without a byte-order mark", "CSV UTF-8"}},
+		{name: "utf16 be without bom", in: "\x00l\x00o\x00n\x00,\x00l\x00a\x00t\x00,\x00r\x00o\x00l\x00e\x00\n", is: ErrEncoding, contains: []string{"UTF-16 text (big-endian) without a byte-order mark"}},
+		{name: "utf32 le", in: "\xFF\xFE\x00\x00l\x00\x00\x00", is: ErrEncoding, line: 1, contains: []string{"UTF-32 byte-order mark"}},
+		{name: "utf32 be", in: "\x00\x00\xFE\xFF\x00\x00\x00l", is: ErrEncoding, line: 1, contains: []string{"UTF-32 byte-order mark"}},
 		{name: "GeoTIFF", in: "II*\x00\b\x00\x00\x00\x14\x00\x00\x01\x03\x00,x", is: ErrEncoding, contains: []string{"binary file", "GeoTIFF", "CSV"}},
 		{name: "Excel workbook", in: "PK\x03\x04\x14\x00\x06\x00lon,lat,role", is: ErrEncoding, contains: []string{"Excel .xlsx", "CSV UTF-8"}},
 		{name: "shapefile", in: "\x00\x00\x27\x0a\x00\x00", is: ErrEncoding, contains: []string{"shapefile", "ogr2ogr -f CSV"}},
