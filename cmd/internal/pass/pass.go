@@ -446,7 +446,7 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	return vals, ok, nil
 }
 
-// ErrNoData is returned when a raster has no cell with data (ExactRange
+// ErrNoData is returned when a raster has no cell with data (HasData
 // finds no valid value, or a pass's Stats.AnyValid is false).
 var ErrNoData = errors.New("pass: the raster has no cell with data")
 

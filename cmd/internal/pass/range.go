@@ -2,38 +2,39 @@ package pass
 
 import (
 	"fmt"
-	"math"
 )
 
-// ExactRange returns the smallest and largest valid model value of the
-// band (after no-data, scale and offset), read from every block at full
-// resolution. Unlike GDAL's approximate statistics it does not depend on
-// how the file is stored (tiled or striped, with or without overviews). ok
-// is false when the band has no valid value. It reads the whole raster:
-// the scoring pass does not need it (the layout needs no value range), so
-// it serves only to explain a run that cannot start.
-func (r *Raster) ExactRange() (lo, hi float64, ok bool, err error) {
-	lo, hi = math.Inf(1), math.Inf(-1)
+// HasData reports whether the band holds a valid model value (not no
+// data, NaN or infinite, after scale and offset), reading its blocks at
+// full resolution in order and stopping at the first block that holds one.
+// A band of more than maxCells cells is read only up to its first
+// maxCells cells' blocks: when none of them holds a value, known is false
+// (the rest is not read). No pass needs it; it serves only to explain a
+// run that cannot start, which should not read a whole continent of no
+// data to word its message.
+func (r *Raster) HasData(maxCells int) (any, known bool, err error) {
 	st := r.band.Structure()
 	var buf []float64
+	read := 0
 	for b, more := st.FirstBlock(), true; more; b, more = b.Next() {
+		if read >= maxCells {
+			return false, false, nil
+		}
 		n := b.W * b.H
+		read += n
 		if cap(buf) < n {
 			buf = make([]float64, n)
 		}
 		buf = buf[:n]
 		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return 0, 0, false, fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
+			return false, false, fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
 		}
 		r.decode(buf)
 		for _, v := range buf {
 			if r.valid(v) {
-				lo, hi = math.Min(lo, v), math.Max(hi, v)
+				return true, true, nil
 			}
 		}
 	}
-	if lo > hi {
-		return 0, 0, false, nil
-	}
-	return lo, hi, true, nil
+	return false, true, nil
 }

@@ -55,10 +55,7 @@ func TestExactRangeLayouts(t *testing.T) {
 		path := filepath.Join(dir, l.name+".tif")
 		writeLayout(t, path, w, h, l.overviews, l.opts...)
 		g, r := openPath(t, path)
-		lo, hi, ok, err := r.ExactRange()
-		if err != nil || !ok {
-			t.Fatalf("%s: %v %v", l.name, ok, err)
-		}
+		lo, hi := exactRange(t, r)
 		// Source: the pixels written above; the lone cells are the extremes.
 		if lo != -2 || hi != 5 {
 			t.Errorf("%s: exact range %v..%v, want -2..5", l.name, lo, hi)
@@ -108,17 +105,71 @@ func TestExactRangeLayouts(t *testing.T) {
 	}
 }
 
-// BenchmarkExactRange measures the whole-raster range read (one goroutine)
-// on the 2000 x 2000 raster of BenchmarkScorePass: the read a model's
-// pass no longer needs before it.
-func BenchmarkExactRange(b *testing.B) {
-	_, r := openTestRaster(b, 2000, 2000)
-	defer r.Close()
-	b.ReportAllocs()
-	for i := 0; i < b.N; i++ {
-		if _, _, ok, err := r.ExactRange(); err != nil || !ok {
-			b.Fatal(ok, err)
+// exactRange returns the smallest and largest valid value of r's band,
+// read from every block at full resolution (GDAL's statistics may sample
+// blocks or read overviews).
+func exactRange(tb testing.TB, r *Raster) (lo, hi float64) {
+	tb.Helper()
+	lo, hi = math.Inf(1), math.Inf(-1)
+	st := r.band.Structure()
+	for b, more := st.FirstBlock(), true; more; b, more = b.Next() {
+		buf := make([]float64, b.W*b.H)
+		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
+			tb.Fatal(err)
+		}
+		r.decode(buf)
+		for _, v := range buf {
+			if r.valid(v) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
 		}
 	}
-	b.ReportMetric(float64(2000*2000)*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
+	return lo, hi
+}
+
+// TestRasterHasData: a run that cannot start read the whole raster to tell a
+// raster of no data from points that miss its data (an adversarial input
+// of 6.5e10 cells, sparse, had not answered after 120 s). HasData stops
+// at the first block with a value and reads at most maxCells cells.
+// Rasters of 400 x 300 cells in blocks of 64 x 64 (35 blocks), no data
+// (-9999) but for the cells named.
+func TestRasterHasData(t *testing.T) {
+	const w, h = 400, 300
+	cases := []struct {
+		name      string
+		data      [][2]int // (row, column) of the cells with data
+		maxCells  int
+		any, know bool
+	}{
+		{"no data, read whole", nil, w * h, false, true},
+		{"no data, more allowed", nil, 10 * w * h, false, true},
+		{"no data, cut short", nil, 20 * 64 * 64, false, false},
+		{"one cell in the last block", [][2]int{{h - 1, w - 1}}, w * h, true, true},
+		// Every block but the last (16 x 44 cells): the last is not read.
+		{"one cell in the last block, cut short", [][2]int{{h - 1, w - 1}}, w*h - (w%64)*(h%64), false, false},
+		{"one cell in the first block", [][2]int{{0, 0}}, 1, true, true},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			path := filepath.Join(t.TempDir(), "m.tif")
+			writeGridRaster(t, path, w, h, false, func(r, col int) float32 {
+				for _, d := range c.data {
+					if d == [2]int{r, col} {
+						return 0.5
+					}
+				}
+				return -9999
+			}, "TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64")
+			g, r := openPath(t, path)
+			defer g.Close()
+			defer r.Close()
+			any, known, err := r.HasData(c.maxCells)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if any != c.any || known != c.know {
+				t.Errorf("HasData(%d) = %v, known %v; want %v, known %v", c.maxCells, any, known, c.any, c.know)
+			}
+		})
+	}
 }

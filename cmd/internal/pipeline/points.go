@@ -597,7 +597,7 @@ func (s *Study) countPoints() {
 func (s *Study) noTestPoint(r *pass.Raster) error {
 	o, c := s.o, s.res.PointCounts
 	if c.NoData > 0 {
-		if _, _, ok, err := r.ExactRange(); err == nil && !ok {
+		if any, known, err := r.HasData(explainCells); err == nil && known && !any {
 			return fmt.Errorf("model %s: %w: every cell of %s is no data (the band's nodata value, NaN or infinite); check the file, or its nodata setting (gdalinfo)", s.models[0].Name, pass.ErrNoData, r.Path)
 		}
 	}
@@ -614,6 +614,12 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 	}
 	return errors.New(msg)
 }
+
+// explainCells is the most cells noTestPoint reads to tell a raster of
+// no data from points that miss its data: 2^28 (268 million, a few
+// seconds; our choice). Past it the message says only that no test point
+// falls on data.
+const explainCells = 1 << 28
 
 func listSome(items []string, n int) string {
 	if len(items) <= n {
