@@ -36,3 +36,33 @@ func TestFileWhereFolderGoes(t *testing.T) {
 		}
 	}
 }
+
+// TestOpenDanglingLink: an --out that is, or lies under, a symbolic link
+// whose target does not exist is refused at the start (exit 2), naming
+// the link and its target, and the link is kept. It used to be accepted:
+// the whole sweep ran, then moving the results onto the link failed with
+// "not a directory" (exit 1); under it, "cannot create ... (file exists)".
+func TestOpenDanglingLink(t *testing.T) {
+	dir := t.TempDir()
+	link := filepath.Join(dir, "out")
+	target := filepath.Join(dir, "nowhere")
+	if err := os.Symlink(target, link); err != nil {
+		t.Fatal(err)
+	}
+	for _, out := range []string{link, filepath.Join(link, "sub")} {
+		d, err := Open(out, true, nil)
+		if err == nil {
+			d.Abort()
+			t.Fatalf("%s: accepted", out)
+		}
+		if !fault.IsBadInput(err) || !strings.Contains(err.Error(), link+" on its path is a symbolic link to "+target+", which does not exist") {
+			t.Errorf("%s: %v", out, err)
+		}
+		if got, err := os.Readlink(link); err != nil || got != target {
+			t.Errorf("%s: the link: %q, %v", out, got, err)
+		}
+		if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+			t.Errorf("%s: %d entries left in %s, want the link alone", out, len(entries), dir)
+		}
+	}
+}

@@ -259,6 +259,10 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 			}
 		}
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
+	} else if link, target := danglingLink(d.abs); link != "" {
+		// The staging folder would be made beside the link and the whole
+		// sweep run, only for the final move onto the link to fail.
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a symbolic link to %s, which does not exist; create that folder, remove the link, or choose another --out", out, link, target))
 	}
 	// Registered and held from here, so that a signal (AbortAll) waits
 	// until the lock and the staging folder exist and then removes both,
@@ -299,6 +303,27 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// danglingLink returns the deepest path on abs, which does not exist,
+// that is a symbolic link whose target does not exist either, and that
+// target as the link gives it; "" when there is none.
+func danglingLink(abs string) (link, target string) {
+	for p := abs; p != filepath.Dir(p); p = filepath.Dir(p) {
+		st, err := os.Lstat(p)
+		if err != nil {
+			continue
+		}
+		if st.Mode()&os.ModeSymlink == 0 {
+			return "", "" // an existing folder: what lies below it is made
+		}
+		t, err := os.Readlink(p)
+		if err != nil {
+			t = "?"
+		}
+		return p, t
+	}
+	return "", ""
 }
 
 // maxSQLitePath is the longest path of a file SQLite opens (its Unix
