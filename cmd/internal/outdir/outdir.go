@@ -19,6 +19,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"syscall"
 	"time"
 
@@ -611,17 +612,22 @@ func globEscape(s string) string {
 // Abort removes the staging folder and releases the lock; the previous
 // content of --out is untouched. It is safe to call more than once and
 // from the signal handler.
-func (d *Dir) Abort() {
+func (d *Dir) Abort() { d.abort() }
+
+// abort is Abort, reporting whether it removed anything (false after
+// Finish, which it waits for).
+func (d *Dir) abort() bool {
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	if d.done {
-		return
+		return false
 	}
 	d.done = true
 	if d.Stage != "" {
 		removeWritten(d.Stage)
 	}
 	d.release()
+	return true
 }
 
 // removeWritten removes a staging folder that the run's writers may
@@ -656,21 +662,40 @@ func (d *Dir) release() {
 }
 
 // AbortAll aborts every run in progress and removes every Staged folder
-// (signal handler).
-func AbortAll() {
+// (signal handler). It returns the folder into which the process last
+// moved complete new outputs (a Dir's Finish or a Staged's that
+// succeeded) when it had none left to abort, "" otherwise: a signal in a
+// run's last moments, after that move, leaves the new outputs whole, not
+// the old ones.
+func AbortAll() (finished string) {
 	active.mu.Lock()
 	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
+	aborted := false
 	for _, d := range dirs {
-		d.Abort()
+		aborted = d.abort() || aborted
 	}
 	activeStaged.mu.Lock()
 	staged := append([]*Staged(nil), activeStaged.list...)
 	activeStaged.mu.Unlock()
 	for _, s := range staged {
-		s.Abort()
+		s.mu.Lock()
+		aborted = !s.done || aborted
+		s.remove()
+		s.mu.Unlock()
 	}
+	if aborted {
+		return ""
+	}
+	if f := finishedOut.Load(); f != nil {
+		return *f
+	}
+	return ""
 }
+
+// finishedOut is the folder into which Finish last moved complete new
+// outputs (see AbortAll).
+var finishedOut atomic.Pointer[string]
 
 // Finish moves the staged results into --out (see the comment at the
 // top of this file) and releases the lock.
@@ -686,6 +711,7 @@ func (d *Dir) Finish() error {
 		if err := os.Rename(d.Stage, d.abs); err == nil {
 			d.created = nil
 			os.Remove(filepath.Join(d.abs, OwnerName))
+			finishedOut.Store(&d.Out)
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
@@ -700,6 +726,7 @@ func (d *Dir) Finish() error {
 	}
 	os.Remove(filepath.Join(d.Stage, OwnerName))
 	os.Remove(d.Stage)
+	finishedOut.Store(&d.Out)
 	return nil
 }
 
@@ -892,6 +919,10 @@ func (s *Staged) Finish(move func() error) error {
 	}
 	err := move()
 	s.remove()
+	if err == nil {
+		dir := filepath.Dir(s.Path)
+		finishedOut.Store(&dir)
+	}
 	return err
 }
 
