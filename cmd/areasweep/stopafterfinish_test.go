@@ -48,6 +48,7 @@ func TestStoppedAfterFinish(t *testing.T) {
 				defer swapStoppedNote("BATCH NOTE")()
 			}
 			msg := stoppedMessage(syscall.SIGTERM)
+			outdir.ResetStopping()
 			want := strings.ReplaceAll(tc.want, "OUT", out)
 			if !strings.HasPrefix(msg, "stopped by SIGTERM; ") || !strings.Contains(msg, want) || strings.Contains(msg, tc.not) {
 				t.Errorf("message %q, want it to hold %q and not %q", msg, want, tc.not)

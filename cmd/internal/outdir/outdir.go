@@ -104,7 +104,15 @@ type Dir struct {
 var active struct {
 	mu   sync.Mutex
 	dirs []*Dir
+	// stopping is set by AbortAll: the process is about to exit, so a
+	// run that opens its --out or a Stage after that creates nothing
+	// (in a batch a study started between the signal and the exit left
+	// its lock file and staging folder behind).
+	stopping bool
 }
+
+// errStopping refuses an output folder opened after AbortAll.
+var errStopping = errors.New("stopped by a signal; nothing was written")
 
 // Umask is the process umask, read once at start (outfile.Umask); folders
 // are created with 0777 &^ Umask like mkdir(1) does, and files with
@@ -271,6 +279,11 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	active.mu.Lock()
+	if active.stopping {
+		active.mu.Unlock()
+		d.done = true
+		return nil, errStopping
+	}
 	active.dirs = append(active.dirs, d)
 	active.mu.Unlock()
 	fail := func(err error) (*Dir, error) {
@@ -669,6 +682,7 @@ func (d *Dir) release() {
 // the old ones.
 func AbortAll() (finished string) {
 	active.mu.Lock()
+	active.stopping = true
 	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
 	aborted := false
@@ -691,6 +705,14 @@ func AbortAll() (finished string) {
 		return *f
 	}
 	return ""
+}
+
+// ResetStopping lets output folders be opened again after AbortAll, for
+// tests that call it in the test process.
+func ResetStopping() {
+	active.mu.Lock()
+	active.stopping = false
+	active.mu.Unlock()
 }
 
 // finishedOut is the folder into which Finish last moved complete new
@@ -894,18 +916,31 @@ func Stage(dir string) (*Staged, error) {
 			}
 		}
 	}
-	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
-	if err != nil {
-		return nil, err
+	// Registered and held before the folder is made, so that a signal
+	// (AbortAll) waits for it and removes it, or comes first and stops
+	// it being made.
+	s := &Staged{}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	active.mu.Lock() // held while s is listed: AbortAll lists it, or stopped first
+	if active.stopping {
+		active.mu.Unlock()
+		s.done = true
+		return nil, errStopping
 	}
-	if err := writeOwner(p, abs); err != nil {
-		os.RemoveAll(p)
-		return nil, err
-	}
-	s := &Staged{Path: p}
 	activeStaged.mu.Lock()
 	activeStaged.list = append(activeStaged.list, s)
 	activeStaged.mu.Unlock()
+	active.mu.Unlock()
+	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
+	if err == nil {
+		s.Path = p
+		err = writeOwner(p, abs)
+	}
+	if err != nil {
+		s.remove()
+		return nil, err
+	}
 	return s, nil
 }
 
@@ -938,7 +973,9 @@ func (s *Staged) remove() {
 		return
 	}
 	s.done = true
-	removeWritten(s.Path)
+	if s.Path != "" {
+		removeWritten(s.Path)
+	}
 	activeStaged.mu.Lock()
 	activeStaged.list = slices.DeleteFunc(activeStaged.list, func(x *Staged) bool { return x == s })
 	activeStaged.mu.Unlock()
