@@ -66,3 +66,34 @@ func TestOpenDanglingLink(t *testing.T) {
 		}
 	}
 }
+
+// TestOpenInputNamedByLinkInOut: an input named by a symbolic link inside
+// --out (out/results.json -> ../model.tif) is an input in --out, refused
+// whatever --force says, like the file itself there. Only the link's
+// target was compared, which lies outside, so the run was accepted and
+// --force deleted the link the command line named, as an output of that
+// name.
+func TestOpenInputNamedByLinkInOut(t *testing.T) {
+	for _, name := range []string{"results.json", "scores.csv", "notes.tif"} {
+		dir := t.TempDir()
+		model := filepath.Join(dir, "model.tif")
+		os.WriteFile(model, []byte("model"), 0o644)
+		out := filepath.Join(dir, "out")
+		os.MkdirAll(out, 0o755)
+		link := filepath.Join(out, name)
+		if err := os.Symlink("../model.tif", link); err != nil {
+			t.Fatal(err)
+		}
+		d, err := Open(out, true, []string{link})
+		if err == nil {
+			d.Abort()
+			t.Fatalf("%s: accepted", name)
+		}
+		if !fault.IsBadInput(err) || !strings.Contains(err.Error(), "holds the input "+link) {
+			t.Errorf("%s: %v", name, err)
+		}
+		if got, err := os.Readlink(link); err != nil || got != "../model.tif" {
+			t.Errorf("%s: the link: %q, %v", name, got, err)
+		}
+	}
+}
