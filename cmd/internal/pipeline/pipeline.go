@@ -2,8 +2,11 @@ package pipeline
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
+	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
@@ -400,6 +403,11 @@ func writeFailedIn(out, stage string, err error) error {
 		what = strings.ReplaceAll(what, stage, out)
 	}
 	full := outdir.DiskFull(cause)
+	if _, serr := os.Stat(stage); stage != "" && !full && errors.Is(serr, fs.ErrNotExist) {
+		// GDAL then says "unable to open database file", a write
+		// "no such file or directory".
+		what = fmt.Sprintf("the folder the run was writing in (%s) was removed while it worked, by another program or by hand; run again", stage)
+	}
 	if !full && strings.Contains(cause.Error(), sqliteFull) {
 		full, what = true, syscall.ENOSPC.Error()
 	}
