@@ -542,10 +542,20 @@ func (d *Dir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lock
 // file is removed when the run ends; a run that locked a file another run
 // had just removed sees that the path now names another file, and tries
 // again.
+// openLock is os.OpenFile for the lock file; tests replace it to meet a
+// folder they cannot write to (they run as root too).
+var openLock = os.OpenFile
+
 func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
-		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
+		f, err := openLock(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
+			if st, serr := os.Stat(d.abs); serr == nil && st.IsDir() && !DiskFull(err) && syscall.Access(d.abs, 2) == nil {
+				// --out itself can be written (a folder made for you in
+				// one you cannot write to): say why its parent matters.
+				return fault.BadInput(fmt.Errorf("--out %s: cannot write the lock file %s beside it, in %s (%w); areasweep writes there to guard --out: give a folder inside it, such as %s, or one in a folder you can write to",
+					out, filepath.Base(d.lockPath()), d.parent, Cause(err), filepath.Join(d.Out, "run1")))
+			}
 			return cannotWrite(out, d.parent, err)
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
