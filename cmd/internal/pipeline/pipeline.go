@@ -393,6 +393,10 @@ func (s *Study) writeFailed(err error) error {
 // or disk is full", GDAL 3.6 on a full tmpfs).
 const sqliteFull = "database or disk is full"
 
+// WriteFailedIn is writeFailedIn, for the demo's inputs written into
+// the staging folder before its run.
+func WriteFailedIn(out, stage string, err error) error { return writeFailedIn(out, stage, err) }
+
 // writeFailedIn is writeFailed for the output folder out, written through
 // the staging folder stage: a library's message that names a file in
 // stage (the user never sees that hidden folder) names it in out.
