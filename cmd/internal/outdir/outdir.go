@@ -597,6 +597,14 @@ func sameFile(f *os.File, path string) bool {
 // left in --out itself (the run died right after moving its stage onto
 // --out) is removed too.
 func (d *Dir) cleanDead(exists bool) {
+	if exists {
+		holds, _ := filepath.Glob(filepath.Join(globEscape(d.abs), holdPrefix+"*"))
+		for _, p := range holds {
+			if o, err := readOwner(p); err == nil && o.out == d.abs && !o.alive() {
+				d.restoreHold(p)
+			}
+		}
+	}
 	var dead []string
 	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+oldStageMarker+"*")); m != nil {
 		dead = append(dead, m...)
@@ -628,6 +636,76 @@ func (d *Dir) cleanDead(exists bool) {
 		}
 		if os.RemoveAll(p) == nil {
 			d.Cleaned++
+		}
+	}
+}
+
+// movingName is the journal a run writes into its set-aside folder once
+// every old entry is in it, before it moves the new ones into --out: the
+// staging folder's path, then the name of each entry it moves, a line
+// each.
+const movingName = ".areasweep-moving"
+
+// restoreHold puts back into --out the previous outputs that a run killed
+// while it replaced them (SIGKILL, a power cut) had set aside in hold, so
+// that --out holds the previous run whole again rather than a mix, and
+// the rerun does not delete them. When the kill came while it moved the
+// new entries in (the journal is there), the ones it had moved (listed,
+// and gone from its staging folder) are removed first: they are that
+// run's; when it had moved them all, --out holds the new run whole and
+// nothing is put back. When a name is taken in --out nothing is put back
+// (see below).
+func (d *Dir) restoreHold(hold string) {
+	b, err := os.ReadFile(filepath.Join(hold, movingName))
+	journal := err == nil
+	if journal {
+		lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
+		stage := lines[0]
+		if filepath.Dir(stage) != d.abs && filepath.Dir(stage) != d.parent {
+			return // not a journal of this --out: the folder is removed as it was
+		}
+		var moved []string
+		for _, n := range lines[1:] {
+			if n == "" || n != filepath.Base(n) || n == "." || n == ".." {
+				continue
+			}
+			if _, err := os.Lstat(filepath.Join(stage, n)); errors.Is(err, os.ErrNotExist) {
+				moved = append(moved, n)
+			}
+		}
+		if len(moved) == len(lines)-1 {
+			return // killed after its last move: --out holds the new run whole
+		}
+		for _, n := range moved {
+			os.RemoveAll(filepath.Join(d.abs, n))
+		}
+	}
+	entries, err := os.ReadDir(hold)
+	if err != nil {
+		return
+	}
+	var names []string
+	for _, e := range entries {
+		n := e.Name()
+		if n == OwnerName || n == movingName {
+			continue
+		}
+		if _, err := os.Lstat(filepath.Join(d.abs, n)); !errors.Is(err, os.ErrNotExist) {
+			// A name taken in --out: putting back the others would make
+			// a mix. Without a journal (a run of an earlier version,
+			// killed while it moved) the folder is removed as before;
+			// with one, the name is a file made since: the folder is
+			// kept, without its owner record, and named in run.log.
+			if journal {
+				os.Remove(filepath.Join(hold, OwnerName))
+			}
+			return
+		}
+		names = append(names, n)
+	}
+	for _, n := range names {
+		if os.Rename(filepath.Join(hold, n), filepath.Join(d.abs, n)) != nil {
+			os.Remove(filepath.Join(hold, OwnerName)) // kept, as above
 		}
 	}
 }
@@ -870,6 +948,17 @@ func (d *Dir) moveEntries() error {
 			return moveFailed(d.Out, "cannot replace "+filepath.Join(d.Out, n), err)
 		}
 		setAside = append(setAside, n)
+	}
+	// The journal: from here on what --out holds of these names is new,
+	// so a run that finds this set-aside folder of a killed run can put
+	// the old entries back (restoreHold).
+	journal := d.Stage + "\n"
+	for _, e := range staged {
+		journal += e.Name() + "\n"
+	}
+	if err := writeFile(filepath.Join(hold, movingName), []byte(journal), 0o666&^Umask); err != nil {
+		undo()
+		return moveFailed(d.Out, "cannot write in "+d.Out, err)
 	}
 	for _, e := range staged {
 		n := e.Name()
