@@ -44,6 +44,10 @@ func TestStoppedAfterFinish(t *testing.T) {
 					t.Fatal(err)
 				}
 			}
+			// The run's note, as at start (another test may have left
+			// the report's).
+			note := "this run's partial results were removed and --out was left as it was"
+			defer stoppedNote.Store(stoppedNote.Swap(&note))
 			if tc.batch {
 				defer swapStoppedNote("BATCH NOTE")()
 			}

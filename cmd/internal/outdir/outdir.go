@@ -480,21 +480,34 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 		if err != nil {
 			continue
 		}
-		// The path as named (its folder resolved, not the file): a
-		// symbolic link inside --out to an input elsewhere is the user's
-		// name of that input, which --force would delete with an output
-		// of the same name (results.json, scores.csv).
-		named := filepath.Join(realPath(filepath.Dir(a)), filepath.Base(a))
 		a = realPath(a)
 		dir := filepath.Dir(a)
 		switch {
-		case within(dir, outAbs), within(filepath.Dir(named), outAbs):
+		case within(dir, outAbs):
 			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
 				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
 		case outAbs == a:
 			return fault.BadInput(fmt.Errorf("--out %s is the input file %s; name a folder for the results", out, in))
 		case within(outAbs, a):
 			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
+		}
+	}
+	// The paths as named (the folder resolved, not the file): a symbolic
+	// link inside --out to an input elsewhere is the user's name of that
+	// input, which --force would delete with an output of the same name
+	// (results.json, scores.csv). After the files themselves, so that a
+	// file in --out (a sidecar GDAL found beside the link) is named first.
+	for _, in := range inputs {
+		if in == "" || isRemote(in) {
+			continue
+		}
+		a, err := filepath.Abs(in)
+		if err != nil {
+			continue
+		}
+		if named := filepath.Join(realPath(filepath.Dir(a)), filepath.Base(a)); within(filepath.Dir(named), outAbs) {
+			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
+				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
 		}
 	}
 	return nil
