@@ -182,7 +182,8 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 // outputs and returns the function that puts the previous one back.
 func swapStoppedNote(note string) (restore func()) {
 	prev := stoppedNote.Swap(&note)
-	return func() { stoppedNote.Store(prev) }
+	was := inBatch.Swap(true)
+	return func() { stoppedNote.Store(prev); inBatch.Store(was) }
 }
 
 // validateStudy checks the settings of one study of a batch as run checks

@@ -10,6 +10,7 @@ import (
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
+	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/scenario"
 	"areasweep/cmd/internal/settings"
 )
@@ -54,6 +55,9 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 // demoRun generates the scenario inside the run's staging folder, so the
 // generated inputs are removed with it on every exit path (an error, a
 // signal, a crash) and arrive in --out/inputs with the results.
+// writeScenario is scenario.Write; tests replace it to meet a full disk.
+var writeScenario = scenario.Write
+
 func demoRun(o *DemoOptions) error {
 	if o.Workers < 0 || o.Workers > settings.MaxWorkers {
 		return fault.BadInput(fmt.Errorf("--workers is %d; give 1 to %d, or leave it out to use every core", o.Workers, settings.MaxWorkers))
@@ -72,9 +76,13 @@ func demoRun(o *DemoOptions) error {
 	defer d.Abort()
 	d.Demo = true
 	inDir := filepath.Join(d.Stage, "inputs")
-	files, err := scenario.Write(inDir, o.Seed)
+	files, err := writeScenario(inDir, o.Seed)
 	if err != nil {
-		return fmt.Errorf("demo: generate scenario: %w", err)
+		// A full disk says so, with what to do, naming --out rather than
+		// the hidden staging folder (it said "demo: generate scenario:
+		// create GeoPackage .../.d.areasweep-partial-.../inputs/ecoregions.gpkg:
+		// sqlite3_exec(COMMIT) failed: database or disk is full").
+		return pipeline.WriteFailedIn(o.Out, d.Stage, err)
 	}
 	if !o.Quiet {
 		fmt.Fprintf(o.IO.ErrOut, "demo: invented species %s written to %s\n", scenario.Species, filepath.Join(o.Out, "inputs"))

@@ -72,6 +72,9 @@ func setRunLog(b *pipeline.Log) {
 // signal stay).
 var stoppedNote atomic.Pointer[string]
 
+// inBatch is set while a batch's note is in place (swapStoppedNote).
+var inBatch atomic.Bool
+
 func init() {
 	note := "this run's partial results were removed and --out was left as it was"
 	stoppedNote.Store(&note)
@@ -91,10 +94,8 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	go func() {
 		select {
 		case s := <-sigs:
-			outdir.AbortAll()
-			n := int(s.(syscall.Signal))
-			fmt.Fprintf(errOut, "areasweep: stopped by %s; %s\n", signalName(s), *stoppedNote.Load())
-			os.Exit(128 + n)
+			fmt.Fprintf(errOut, "areasweep: %s\n", stoppedMessage(s))
+			os.Exit(128 + int(s.(syscall.Signal)))
 		case <-stop:
 		}
 	}()
@@ -135,6 +136,19 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		return exitInternal
 	}
 	return exitFailed
+}
+
+// stoppedMessage aborts the outputs in progress (outdir.AbortAll) and
+// says what a stop signal s left. A signal in the last moments of a run
+// or report, after its new outputs were moved into place, leaves them
+// whole: the message says so rather than that the folder was left as it
+// was (a batch's note stands: it speaks of all its studies).
+func stoppedMessage(s os.Signal) string {
+	note := *stoppedNote.Load()
+	if out := outdir.AbortAll(); out != "" && !inBatch.Load() {
+		note = fmt.Sprintf("it had already moved its complete new outputs into %s, which holds them whole", out)
+	}
+	return fmt.Sprintf("stopped by %s; %s", signalName(s), note)
 }
 
 func signalName(s os.Signal) string {

@@ -3,6 +3,8 @@ package batchrun
 import (
 	"errors"
 	"fmt"
+	"io/fs"
+	"os"
 	"path/filepath"
 	"strings"
 
@@ -40,6 +42,18 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 			sum = m["results"]
 		}
 		r, err := report.LoadWritten(filepath.Join(st.dir, "results.json"), sum)
+		if _, serr := os.Stat(batch.MarkerPath(st.dir)); err != nil && errors.Is(serr, fs.ErrNotExist) {
+			// Removed since it finished, marker and all: the same
+			// command runs it again (with --force when files of it
+			// are left), so the advice below would be wrong.
+			if _, derr := os.Stat(st.dir); errors.Is(derr, fs.ErrNotExist) {
+				errs[i] = fmt.Errorf("%s was removed after the study finished; running the same command again runs it again", st.dir)
+			} else {
+				errs[i] = fmt.Errorf("%s lost its results.json and its completion marker (%s) after the study finished; running the same command with --force runs it again", st.dir, batch.MarkerPath(st.dir))
+			}
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
+			continue
+		}
 		if err != nil {
 			// Finished (its completion marker is there), so the same
 			// command would skip it again: say how to run it again.

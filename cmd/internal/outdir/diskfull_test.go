@@ -115,3 +115,35 @@ func TestMoveFailedSaysWhatToDo(t *testing.T) {
 		t.Errorf("left %v", l)
 	}
 }
+
+// TestOpenLockParentNotWritable: an --out you can write to, in a folder
+// you cannot (a folder made for you in a shared one), is refused because
+// the lock file goes beside it; the message said only "cannot write in
+// PARENT (permission denied); choose a folder you can write to", which
+// reads as wrong when --out is yours (found with a writable tmpfs mounted
+// inside a read-only one). It now names the lock file and offers a folder
+// inside --out. An --out that does not exist keeps the plain message.
+func TestOpenLockParentNotWritable(t *testing.T) {
+	defer func(f func(string, int, os.FileMode) (*os.File, error)) { openLock = f }(openLock)
+	openLock = func(name string, _ int, _ os.FileMode) (*os.File, error) {
+		return nil, &os.PathError{Op: "open", Path: name, Err: syscall.EACCES}
+	}
+	for _, exists := range []bool{true, false} {
+		dir := t.TempDir()
+		out := filepath.Join(dir, "alice")
+		if exists {
+			os.Mkdir(out, 0o755)
+		}
+		_, err := Open(out, false, nil)
+		if err == nil || !fault.IsBadInput(err) {
+			t.Fatalf("exists %v: %v", exists, err)
+		}
+		want := "--out " + out + ": cannot write the lock file .alice.areasweep-lock beside it, in " + dir + " (permission denied); areasweep writes there to guard --out: give a folder inside it, such as " + filepath.Join(out, "run1")
+		if got := strings.HasPrefix(err.Error(), want); got != exists {
+			t.Errorf("exists %v: %q; names the lock file and a folder inside: %v", exists, err, got)
+		}
+		if l := leftovers(dir); len(l) > 0 {
+			t.Errorf("exists %v: left %v", exists, l)
+		}
+	}
+}

@@ -36,3 +36,64 @@ func TestFileWhereFolderGoes(t *testing.T) {
 		}
 	}
 }
+
+// TestOpenDanglingLink: an --out that is, or lies under, a symbolic link
+// whose target does not exist is refused at the start (exit 2), naming
+// the link and its target, and the link is kept. It used to be accepted:
+// the whole sweep ran, then moving the results onto the link failed with
+// "not a directory" (exit 1); under it, "cannot create ... (file exists)".
+func TestOpenDanglingLink(t *testing.T) {
+	dir := t.TempDir()
+	link := filepath.Join(dir, "out")
+	target := filepath.Join(dir, "nowhere")
+	if err := os.Symlink(target, link); err != nil {
+		t.Fatal(err)
+	}
+	for _, out := range []string{link, filepath.Join(link, "sub")} {
+		d, err := Open(out, true, nil)
+		if err == nil {
+			d.Abort()
+			t.Fatalf("%s: accepted", out)
+		}
+		if !fault.IsBadInput(err) || !strings.Contains(err.Error(), link+" on its path is a symbolic link to "+target+", which does not exist") {
+			t.Errorf("%s: %v", out, err)
+		}
+		if got, err := os.Readlink(link); err != nil || got != target {
+			t.Errorf("%s: the link: %q, %v", out, got, err)
+		}
+		if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+			t.Errorf("%s: %d entries left in %s, want the link alone", out, len(entries), dir)
+		}
+	}
+}
+
+// TestOpenInputNamedByLinkInOut: an input named by a symbolic link inside
+// --out (out/results.json -> ../model.tif) is an input in --out, refused
+// whatever --force says, like the file itself there. Only the link's
+// target was compared, which lies outside, so the run was accepted and
+// --force deleted the link the command line named, as an output of that
+// name.
+func TestOpenInputNamedByLinkInOut(t *testing.T) {
+	for _, name := range []string{"results.json", "scores.csv", "notes.tif"} {
+		dir := t.TempDir()
+		model := filepath.Join(dir, "model.tif")
+		os.WriteFile(model, []byte("model"), 0o644)
+		out := filepath.Join(dir, "out")
+		os.MkdirAll(out, 0o755)
+		link := filepath.Join(out, name)
+		if err := os.Symlink("../model.tif", link); err != nil {
+			t.Fatal(err)
+		}
+		d, err := Open(out, true, []string{link})
+		if err == nil {
+			d.Abort()
+			t.Fatalf("%s: accepted", name)
+		}
+		if !fault.IsBadInput(err) || !strings.Contains(err.Error(), "holds the input "+link) {
+			t.Errorf("%s: %v", name, err)
+		}
+		if got, err := os.Readlink(link); err != nil || got != "../model.tif" {
+			t.Errorf("%s: the link: %q, %v", name, got, err)
+		}
+	}
+}

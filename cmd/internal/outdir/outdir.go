@@ -19,6 +19,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"syscall"
 	"time"
 
@@ -103,7 +104,15 @@ type Dir struct {
 var active struct {
 	mu   sync.Mutex
 	dirs []*Dir
+	// stopping is set by AbortAll: the process is about to exit, so a
+	// run that opens its --out or a Stage after that creates nothing
+	// (in a batch a study started between the signal and the exit left
+	// its lock file and staging folder behind).
+	stopping bool
 }
+
+// errStopping refuses an output folder opened after AbortAll.
+var errStopping = errors.New("stopped by a signal; nothing was written")
 
 // Umask is the process umask, read once at start (outfile.Umask); folders
 // are created with 0777 &^ Umask like mkdir(1) does, and files with
@@ -259,6 +268,10 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 			}
 		}
 		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
+	} else if link, target := danglingLink(d.abs); link != "" {
+		// The staging folder would be made beside the link and the whole
+		// sweep run, only for the final move onto the link to fail.
+		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a symbolic link to %s, which does not exist; create that folder, remove the link, or choose another --out", out, link, target))
 	}
 	// Registered and held from here, so that a signal (AbortAll) waits
 	// until the lock and the staging folder exist and then removes both,
@@ -266,6 +279,11 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	active.mu.Lock()
+	if active.stopping {
+		active.mu.Unlock()
+		d.done = true
+		return nil, errStopping
+	}
 	active.dirs = append(active.dirs, d)
 	active.mu.Unlock()
 	fail := func(err error) (*Dir, error) {
@@ -299,6 +317,27 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	}
 	d.Stage = stage
 	return d, nil
+}
+
+// danglingLink returns the deepest path on abs, which does not exist,
+// that is a symbolic link whose target does not exist either, and that
+// target as the link gives it; "" when there is none.
+func danglingLink(abs string) (link, target string) {
+	for p := abs; p != filepath.Dir(p); p = filepath.Dir(p) {
+		st, err := os.Lstat(p)
+		if err != nil {
+			continue
+		}
+		if st.Mode()&os.ModeSymlink == 0 {
+			return "", "" // an existing folder: what lies below it is made
+		}
+		t, err := os.Readlink(p)
+		if err != nil {
+			t = "?"
+		}
+		return p, t
+	}
+	return "", ""
 }
 
 // maxSQLitePath is the longest path of a file SQLite opens (its Unix
@@ -453,6 +492,24 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
 		}
 	}
+	// The paths as named (the folder resolved, not the file): a symbolic
+	// link inside --out to an input elsewhere is the user's name of that
+	// input, which --force would delete with an output of the same name
+	// (results.json, scores.csv). After the files themselves, so that a
+	// file in --out (a sidecar GDAL found beside the link) is named first.
+	for _, in := range inputs {
+		if in == "" || isRemote(in) {
+			continue
+		}
+		a, err := filepath.Abs(in)
+		if err != nil {
+			continue
+		}
+		if named := filepath.Join(realPath(filepath.Dir(a)), filepath.Base(a)); within(filepath.Dir(named), outAbs) {
+			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
+				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+		}
+	}
 	return nil
 }
 
@@ -498,10 +555,20 @@ func (d *Dir) lockPath() string { return filepath.Join(d.parent, "."+d.name+lock
 // file is removed when the run ends; a run that locked a file another run
 // had just removed sees that the path now names another file, and tries
 // again.
+// openLock is os.OpenFile for the lock file; tests replace it to meet a
+// folder they cannot write to (they run as root too).
+var openLock = os.OpenFile
+
 func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
-		f, err := os.OpenFile(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
+		f, err := openLock(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
+			if st, serr := os.Stat(d.abs); serr == nil && st.IsDir() && !DiskFull(err) && syscall.Access(d.abs, 2) == nil {
+				// --out itself can be written (a folder made for you in
+				// one you cannot write to): say why its parent matters.
+				return fault.BadInput(fmt.Errorf("--out %s: cannot write the lock file %s beside it, in %s (%w); areasweep writes there to guard --out: give a folder inside it, such as %s, or one in a folder you can write to",
+					out, filepath.Base(d.lockPath()), d.parent, Cause(err), filepath.Join(d.Out, "run1")))
+			}
 			return cannotWrite(out, d.parent, err)
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
@@ -543,6 +610,14 @@ func sameFile(f *os.File, path string) bool {
 // left in --out itself (the run died right after moving its stage onto
 // --out) is removed too.
 func (d *Dir) cleanDead(exists bool) {
+	if exists {
+		holds, _ := filepath.Glob(filepath.Join(globEscape(d.abs), holdPrefix+"*"))
+		for _, p := range holds {
+			if o, err := readOwner(p); err == nil && o.out == d.abs && !o.alive() {
+				d.restoreHold(p)
+			}
+		}
+	}
 	var dead []string
 	if m, _ := filepath.Glob(filepath.Join(d.parent, "."+globEscape(d.name)+oldStageMarker+"*")); m != nil {
 		dead = append(dead, m...)
@@ -578,6 +653,76 @@ func (d *Dir) cleanDead(exists bool) {
 	}
 }
 
+// movingName is the journal a run writes into its set-aside folder once
+// every old entry is in it, before it moves the new ones into --out: the
+// staging folder's path, then the name of each entry it moves, a line
+// each.
+const movingName = ".areasweep-moving"
+
+// restoreHold puts back into --out the previous outputs that a run killed
+// while it replaced them (SIGKILL, a power cut) had set aside in hold, so
+// that --out holds the previous run whole again rather than a mix, and
+// the rerun does not delete them. When the kill came while it moved the
+// new entries in (the journal is there), the ones it had moved (listed,
+// and gone from its staging folder) are removed first: they are that
+// run's; when it had moved them all, --out holds the new run whole and
+// nothing is put back. When a name is taken in --out nothing is put back
+// (see below).
+func (d *Dir) restoreHold(hold string) {
+	b, err := os.ReadFile(filepath.Join(hold, movingName))
+	journal := err == nil
+	if journal {
+		lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
+		stage := lines[0]
+		if filepath.Dir(stage) != d.abs && filepath.Dir(stage) != d.parent {
+			return // not a journal of this --out: the folder is removed as it was
+		}
+		var moved []string
+		for _, n := range lines[1:] {
+			if n == "" || n != filepath.Base(n) || n == "." || n == ".." {
+				continue
+			}
+			if _, err := os.Lstat(filepath.Join(stage, n)); errors.Is(err, os.ErrNotExist) {
+				moved = append(moved, n)
+			}
+		}
+		if len(moved) == len(lines)-1 {
+			return // killed after its last move: --out holds the new run whole
+		}
+		for _, n := range moved {
+			os.RemoveAll(filepath.Join(d.abs, n))
+		}
+	}
+	entries, err := os.ReadDir(hold)
+	if err != nil {
+		return
+	}
+	var names []string
+	for _, e := range entries {
+		n := e.Name()
+		if n == OwnerName || n == movingName {
+			continue
+		}
+		if _, err := os.Lstat(filepath.Join(d.abs, n)); !errors.Is(err, os.ErrNotExist) {
+			// A name taken in --out: putting back the others would make
+			// a mix. Without a journal (a run of an earlier version,
+			// killed while it moved) the folder is removed as before;
+			// with one, the name is a file made since: the folder is
+			// kept, without its owner record, and named in run.log.
+			if journal {
+				os.Remove(filepath.Join(hold, OwnerName))
+			}
+			return
+		}
+		names = append(names, n)
+	}
+	for _, n := range names {
+		if os.Rename(filepath.Join(hold, n), filepath.Join(d.abs, n)) != nil {
+			os.Remove(filepath.Join(hold, OwnerName)) // kept, as above
+		}
+	}
+}
+
 func globEscape(s string) string {
 	r := strings.NewReplacer(`\`, `\\`, `*`, `\*`, `?`, `\?`, `[`, `\[`)
 	return r.Replace(s)
@@ -586,17 +731,22 @@ func globEscape(s string) string {
 // Abort removes the staging folder and releases the lock; the previous
 // content of --out is untouched. It is safe to call more than once and
 // from the signal handler.
-func (d *Dir) Abort() {
+func (d *Dir) Abort() { d.abort() }
+
+// abort is Abort, reporting whether it removed anything (false after
+// Finish, which it waits for).
+func (d *Dir) abort() bool {
 	d.mu.Lock()
 	defer d.mu.Unlock()
 	if d.done {
-		return
+		return false
 	}
 	d.done = true
 	if d.Stage != "" {
 		removeWritten(d.Stage)
 	}
 	d.release()
+	return true
 }
 
 // removeWritten removes a staging folder that the run's writers may
@@ -631,21 +781,49 @@ func (d *Dir) release() {
 }
 
 // AbortAll aborts every run in progress and removes every Staged folder
-// (signal handler).
-func AbortAll() {
+// (signal handler). It returns the folder into which the process last
+// moved complete new outputs (a Dir's Finish or a Staged's that
+// succeeded) when it had none left to abort, "" otherwise: a signal in a
+// run's last moments, after that move, leaves the new outputs whole, not
+// the old ones.
+func AbortAll() (finished string) {
 	active.mu.Lock()
+	active.stopping = true
 	dirs := append([]*Dir(nil), active.dirs...)
 	active.mu.Unlock()
+	aborted := false
 	for _, d := range dirs {
-		d.Abort()
+		aborted = d.abort() || aborted
 	}
 	activeStaged.mu.Lock()
 	staged := append([]*Staged(nil), activeStaged.list...)
 	activeStaged.mu.Unlock()
 	for _, s := range staged {
-		s.Abort()
+		s.mu.Lock()
+		aborted = !s.done || aborted
+		s.remove()
+		s.mu.Unlock()
 	}
+	if aborted {
+		return ""
+	}
+	if f := finishedOut.Load(); f != nil {
+		return *f
+	}
+	return ""
 }
+
+// ResetStopping lets output folders be opened again after AbortAll, for
+// tests that call it in the test process.
+func ResetStopping() {
+	active.mu.Lock()
+	active.stopping = false
+	active.mu.Unlock()
+}
+
+// finishedOut is the folder into which Finish last moved complete new
+// outputs (see AbortAll).
+var finishedOut atomic.Pointer[string]
 
 // Finish moves the staged results into --out (see the comment at the
 // top of this file) and releases the lock.
@@ -661,6 +839,7 @@ func (d *Dir) Finish() error {
 		if err := os.Rename(d.Stage, d.abs); err == nil {
 			d.created = nil
 			os.Remove(filepath.Join(d.abs, OwnerName))
+			finishedOut.Store(&d.Out)
 			return nil
 		} else if _, serr := os.Stat(d.abs); serr != nil {
 			os.RemoveAll(d.Stage)
@@ -675,6 +854,7 @@ func (d *Dir) Finish() error {
 	}
 	os.Remove(filepath.Join(d.Stage, OwnerName))
 	os.Remove(d.Stage)
+	finishedOut.Store(&d.Out)
 	return nil
 }
 
@@ -782,6 +962,17 @@ func (d *Dir) moveEntries() error {
 		}
 		setAside = append(setAside, n)
 	}
+	// The journal: from here on what --out holds of these names is new,
+	// so a run that finds this set-aside folder of a killed run can put
+	// the old entries back (restoreHold).
+	journal := d.Stage + "\n"
+	for _, e := range staged {
+		journal += e.Name() + "\n"
+	}
+	if err := writeFile(filepath.Join(hold, movingName), []byte(journal), 0o666&^Umask); err != nil {
+		undo()
+		return moveFailed(d.Out, "cannot write in "+d.Out, err)
+	}
 	for _, e := range staged {
 		n := e.Name()
 		if err := os.Rename(filepath.Join(d.Stage, n), filepath.Join(d.abs, n)); err != nil {
@@ -842,18 +1033,31 @@ func Stage(dir string) (*Staged, error) {
 			}
 		}
 	}
-	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
-	if err != nil {
-		return nil, err
+	// Registered and held before the folder is made, so that a signal
+	// (AbortAll) waits for it and removes it, or comes first and stops
+	// it being made.
+	s := &Staged{}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	active.mu.Lock() // held while s is listed: AbortAll lists it, or stopped first
+	if active.stopping {
+		active.mu.Unlock()
+		s.done = true
+		return nil, errStopping
 	}
-	if err := writeOwner(p, abs); err != nil {
-		os.RemoveAll(p)
-		return nil, err
-	}
-	s := &Staged{Path: p}
 	activeStaged.mu.Lock()
 	activeStaged.list = append(activeStaged.list, s)
 	activeStaged.mu.Unlock()
+	active.mu.Unlock()
+	p, err := os.MkdirTemp(dir, stagedPrefix+strconv.Itoa(os.Getpid())+"-")
+	if err == nil {
+		s.Path = p
+		err = writeOwner(p, abs)
+	}
+	if err != nil {
+		s.remove()
+		return nil, err
+	}
 	return s, nil
 }
 
@@ -867,6 +1071,10 @@ func (s *Staged) Finish(move func() error) error {
 	}
 	err := move()
 	s.remove()
+	if err == nil {
+		dir := filepath.Dir(s.Path)
+		finishedOut.Store(&dir)
+	}
 	return err
 }
 
@@ -882,7 +1090,9 @@ func (s *Staged) remove() {
 		return
 	}
 	s.done = true
-	removeWritten(s.Path)
+	if s.Path != "" {
+		removeWritten(s.Path)
+	}
 	activeStaged.mu.Lock()
 	activeStaged.list = slices.DeleteFunc(activeStaged.list, func(x *Staged) bool { return x == s })
 	activeStaged.mu.Unlock()

@@ -297,3 +297,26 @@ func TestStageRemovesDeadStaging(t *testing.T) {
 		})
 	}
 }
+
+// TestNothingMadeAfterAbortAll: once a signal's AbortAll has run, the
+// process is about to exit, so an --out or a Stage opened then (a batch's
+// next study starting meanwhile) must create nothing. It created its lock
+// file and staging folder, left behind by the exit (found by interrupting
+// a batch with --jobs 2 after 0.3 s: 2 of 30 left
+// .s2.areasweep-lock and .s2.areasweep-partial-PID-...).
+func TestNothingMadeAfterAbortAll(t *testing.T) {
+	defer ResetStopping()
+	dir := t.TempDir()
+	AbortAll()
+	if d, err := Open(filepath.Join(dir, "out"), false, nil); err == nil {
+		d.Abort()
+		t.Errorf("Open after AbortAll: accepted")
+	}
+	if s, err := Stage(dir); err == nil {
+		s.Abort()
+		t.Errorf("Stage after AbortAll: accepted")
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) > 0 {
+		t.Errorf("%d entries made after AbortAll: %v", len(entries), entries)
+	}
+}

@@ -97,7 +97,28 @@ func (o owner) alive() bool {
 	if err := syscall.Kill(o.pid, 0); errors.Is(err, syscall.ESRCH) {
 		return false
 	}
+	if exited(o.pid) {
+		return false
+	}
 	return o.start == "" || o.start == startTime(o.pid)
+}
+
+// exited reports whether process pid has ended but is still listed, a
+// zombie its parent has not reaped yet (state Z, or X while it goes;
+// /proc/PID/stat, field 3): a run killed by a parent that reruns it
+// before waiting for it (a Python script's Popen.kill) left its staging
+// folder to a later run.
+func exited(pid int) bool {
+	b, err := os.ReadFile("/proc/" + strconv.Itoa(pid) + "/stat")
+	if err != nil {
+		return false
+	}
+	i := bytes.LastIndexByte(b, ')')
+	if i < 0 {
+		return false
+	}
+	f := strings.Fields(string(b[i+1:]))
+	return len(f) > 0 && (f[0] == "Z" || f[0] == "X")
 }
 
 // bootID is the kernel's boot id, or "" where there is none.

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 )
 
 // deadPID is the id of a process that has ended (a `true` run and waited
@@ -151,4 +152,35 @@ func TestRecordsMovedLast(t *testing.T) {
 	if strings.Contains(strings.Join(leftovers(filepath.Dir(out)), ","), "areasweep") {
 		t.Errorf("left behind: %v", leftovers(filepath.Dir(out)))
 	}
+}
+
+// TestZombieOwnerNotAlive: the record of a run that was killed but not
+// yet reaped by its parent (a zombie, which kill(pid, 0) and
+// /proc/PID/stat still find) is not alive, so that a rerun at once
+// removes its staging folder. It was kept, and left to a later run
+// (found killing `merge` with SIGKILL from a Python script that reran it
+// before calling wait).
+func TestZombieOwnerNotAlive(t *testing.T) {
+	cmd := exec.Command("sleep", "30")
+	if err := cmd.Start(); err != nil {
+		t.Skip("no sleep command:", err)
+	}
+	pid := cmd.Process.Pid
+	start := startTime(pid)
+	host, _ := os.Hostname()
+	o := owner{out: "/x", host: host, boot: bootID(), pid: pid, start: start}
+	if !o.alive() {
+		t.Fatalf("a running process: not alive")
+	}
+	cmd.Process.Kill()
+	for i := 0; i < 200; i++ { // until the kernel has it as a zombie
+		if b, _ := os.ReadFile("/proc/" + strconv.Itoa(pid) + "/stat"); strings.Contains(string(b), ") Z ") {
+			break
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	if o.alive() {
+		t.Errorf("a killed process not yet reaped (a zombie): alive")
+	}
+	cmd.Wait()
 }

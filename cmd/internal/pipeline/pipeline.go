@@ -2,8 +2,11 @@ package pipeline
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
+	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
@@ -390,6 +393,10 @@ func (s *Study) writeFailed(err error) error {
 // or disk is full", GDAL 3.6 on a full tmpfs).
 const sqliteFull = "database or disk is full"
 
+// WriteFailedIn is writeFailedIn, for the demo's inputs written into
+// the staging folder before its run.
+func WriteFailedIn(out, stage string, err error) error { return writeFailedIn(out, stage, err) }
+
 // writeFailedIn is writeFailed for the output folder out, written through
 // the staging folder stage: a library's message that names a file in
 // stage (the user never sees that hidden folder) names it in out.
@@ -400,6 +407,11 @@ func writeFailedIn(out, stage string, err error) error {
 		what = strings.ReplaceAll(what, stage, out)
 	}
 	full := outdir.DiskFull(cause)
+	if _, serr := os.Stat(stage); stage != "" && !full && errors.Is(serr, fs.ErrNotExist) {
+		// GDAL then says "unable to open database file", a write
+		// "no such file or directory".
+		what = fmt.Sprintf("the folder the run was writing in (%s) was removed while it worked, by another program or by hand; run again", stage)
+	}
 	if !full && strings.Contains(cause.Error(), sqliteFull) {
 		full, what = true, syscall.ENOSPC.Error()
 	}

@@ -3,6 +3,7 @@ package pipeline
 import (
 	"errors"
 	"os"
+	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
@@ -15,6 +16,12 @@ import (
 // the library's words; other causes get no such advice.
 func TestWriteFailedNamesFolder(t *testing.T) {
 	stage := "/data/out/.areasweep-stage-123/results.json"
+	// The staging folder exists, as while a run writes (one removed
+	// meanwhile is TestWriteFailedStageRemoved's case).
+	staged := filepath.Join(t.TempDir(), ".sp1.areasweep-stage-7")
+	if err := os.Mkdir(staged, 0o755); err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
 		name   string
 		err    error
@@ -32,10 +39,10 @@ func TestWriteFailedNamesFolder(t *testing.T) {
 		{"other", errors.New("short write"), false},
 		// Another library error naming a file in the staging folder: the
 		// file is named in --out instead.
-		{"library error", errors.New("extent: write /data/.sp1.areasweep-stage-7/extents.gpkg: I/O error"), false},
+		{"library error", errors.New("extent: write " + staged + "/extents.gpkg: I/O error"), false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			msg := writeFailedIn("results/sp1", "/data/.sp1.areasweep-stage-7", tc.err).Error()
+			msg := writeFailedIn("results/sp1", staged, tc.err).Error()
 			if !strings.HasPrefix(msg, "writing the results into results/sp1 failed: ") || !strings.HasSuffix(msg, "; nothing in it was changed") {
 				t.Fatalf("message %q does not name the output folder", msg)
 			}
@@ -49,5 +56,25 @@ func TestWriteFailedNamesFolder(t *testing.T) {
 				t.Errorf("message %q: advice on space %v, want %v", msg, got, tc.advice)
 			}
 		})
+	}
+}
+
+// TestWriteFailedStageRemoved: when the staging folder was removed while
+// the run wrote in it (the --out that held it deleted by hand, or a
+// batch's study folder), the message says so instead of passing on
+// SQLite's "unable to open database file" for the next GeoPackage (the
+// message of every one of 6 runs whose --out or staging folder was
+// deleted 0.5 to 1.5 s in).
+func TestWriteFailedStageRemoved(t *testing.T) {
+	staged := filepath.Join(t.TempDir(), "out", ".areasweep-partial-7-8")
+	for _, err := range []error{
+		errors.New("extent: create " + staged + "/extents.gpkg: failed: unable to open database file"),
+		&os.PathError{Op: "open", Path: staged + "/scores.csv", Err: syscall.ENOENT},
+	} {
+		msg := writeFailedIn("results/sp1", staged, err).Error()
+		want := "writing the results into results/sp1 failed: the folder the run was writing in (" + staged + ") was removed while it worked, by another program or by hand; run again"
+		if !strings.HasPrefix(msg, want) || strings.Contains(msg, "database") {
+			t.Errorf("message %q, want it to begin %q", msg, want)
+		}
 	}
 }

@@ -1,0 +1,46 @@
+package batchrun
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestSummaryStudyRemovedAfterFinishing: a finished study whose folder
+// (or whose results.json and completion marker) was removed before the
+// summary read it used to be named as damaged, "the study counts as
+// finished: restore the file, or remove DIR/.areasweep-done and run the
+// same command with --force", while no marker was left to remove and
+// the study no longer counted as finished (found by deleting a study's
+// folder during a batch with --jobs 2). The message now says what
+// happened and what runs it again; a plain failure, which the same
+// command retries, not a damaged one.
+func TestSummaryStudyRemovedAfterFinishing(t *testing.T) {
+	for _, tc := range []struct {
+		name      string
+		keepEmpty bool // the folder stays, emptied
+		want      string
+	}{
+		{"folder removed", false, "DIR was removed after the study finished; running the same command again runs it again"},
+		{"files removed", true, "DIR lost its results.json and its completion marker (DIR/.areasweep-done) after the study finished; running the same command with --force runs it again"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			out := t.TempDir()
+			dir := filepath.Join(out, "s1")
+			if tc.keepEmpty {
+				os.Mkdir(dir, 0o755)
+			}
+			errs := []error{nil}
+			if err := writeSummary(&Options{Out: out}, []*study{{id: "s1", dir: dir}}, errs); err != nil {
+				t.Fatal(err)
+			}
+			var de *damagedError
+			want := strings.ReplaceAll(tc.want, "DIR", dir)
+			if errs[0] == nil || errs[0].Error() != want || errors.As(errs[0], &de) {
+				t.Errorf("error %v, want %q (not a damaged study)", errs[0], want)
+			}
+		})
+	}
+}
