@@ -472,24 +472,29 @@ func within(path, dir string) bool {
 // input, or lies inside an input that is a folder: replacing it could
 // delete the inputs.
 func checkOutVsInputs(outAbs, out string, inputs []string) error {
+	type input struct{ named, abs string }
+	var local []input
 	for _, in := range inputs {
 		if in == "" || isRemote(in) {
 			continue
 		}
-		a, err := filepath.Abs(in)
-		if err != nil {
-			continue
+		if a, err := filepath.Abs(in); err == nil {
+			local = append(local, input{in, a})
 		}
-		a = realPath(a)
-		dir := filepath.Dir(a)
+	}
+	holds := func(in string) error {
+		return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
+			out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+	}
+	for _, in := range local {
+		a := realPath(in.abs)
 		switch {
-		case within(dir, outAbs):
-			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
-				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+		case within(filepath.Dir(a), outAbs):
+			return holds(in.named)
 		case outAbs == a:
-			return fault.BadInput(fmt.Errorf("--out %s is the input file %s; name a folder for the results", out, in))
+			return fault.BadInput(fmt.Errorf("--out %s is the input file %s; name a folder for the results", out, in.named))
 		case within(outAbs, a):
-			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in))
+			return fault.BadInput(fmt.Errorf("--out %s lies inside the input %s; choose an --out outside it", out, in.named))
 		}
 	}
 	// The paths as named (the folder resolved, not the file): a symbolic
@@ -497,17 +502,9 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 	// input, which --force would delete with an output of the same name
 	// (results.json, scores.csv). After the files themselves, so that a
 	// file in --out (a sidecar GDAL found beside the link) is named first.
-	for _, in := range inputs {
-		if in == "" || isRemote(in) {
-			continue
-		}
-		a, err := filepath.Abs(in)
-		if err != nil {
-			continue
-		}
-		if named := filepath.Join(realPath(filepath.Dir(a)), filepath.Base(a)); within(filepath.Dir(named), outAbs) {
-			return fault.BadInput(fmt.Errorf("--out %s holds the input %s; areasweep never writes where its inputs are, whatever --force says: choose another --out, e.g. %s",
-				out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
+	for _, in := range local {
+		if named := filepath.Join(realPath(filepath.Dir(in.abs)), filepath.Base(in.abs)); within(filepath.Dir(named), outAbs) {
+			return holds(in.named)
 		}
 	}
 	return nil
