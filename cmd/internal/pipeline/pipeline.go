@@ -384,7 +384,7 @@ func (s *Study) warn(msg string) {
 // writeFailed words an error while writing the outputs (exit 1), naming
 // the output folder; a full disk or quota also says what to do.
 func (s *Study) writeFailed(err error) error {
-	return writeFailedIn(s.o.Out, s.stage, err)
+	return WriteFailedIn(s.o.Out, s.stage, err)
 }
 
 // sqliteFull is SQLite's text for a full disk (SQLITE_FULL), which GDAL's
@@ -393,14 +393,12 @@ func (s *Study) writeFailed(err error) error {
 // or disk is full", GDAL 3.6 on a full tmpfs).
 const sqliteFull = "database or disk is full"
 
-// WriteFailedIn is writeFailedIn, for the demo's inputs written into
-// the staging folder before its run.
-func WriteFailedIn(out, stage string, err error) error { return writeFailedIn(out, stage, err) }
-
-// writeFailedIn is writeFailed for the output folder out, written through
+// WriteFailedIn is writeFailed for the output folder out, written through
 // the staging folder stage: a library's message that names a file in
-// stage (the user never sees that hidden folder) names it in out.
-func writeFailedIn(out, stage string, err error) error {
+// stage (the user never sees that hidden folder) names it in out. The
+// demo calls it for the inputs it writes into the staging folder before
+// its run.
+func WriteFailedIn(out, stage string, err error) error {
 	cause := outdir.Cause(err)
 	what := gdalmsg.Cause(cause.Error())
 	if stage != "" {

@@ -42,7 +42,7 @@ func TestWriteFailedNamesFolder(t *testing.T) {
 		{"library error", errors.New("extent: write " + staged + "/extents.gpkg: I/O error"), false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			msg := writeFailedIn("results/sp1", staged, tc.err).Error()
+			msg := WriteFailedIn("results/sp1", staged, tc.err).Error()
 			if !strings.HasPrefix(msg, "writing the results into results/sp1 failed: ") || !strings.HasSuffix(msg, "; nothing in it was changed") {
 				t.Fatalf("message %q does not name the output folder", msg)
 			}
@@ -71,7 +71,7 @@ func TestWriteFailedStageRemoved(t *testing.T) {
 		errors.New("extent: create " + staged + "/extents.gpkg: failed: unable to open database file"),
 		&os.PathError{Op: "open", Path: staged + "/scores.csv", Err: syscall.ENOENT},
 	} {
-		msg := writeFailedIn("results/sp1", staged, err).Error()
+		msg := WriteFailedIn("results/sp1", staged, err).Error()
 		want := "writing the results into results/sp1 failed: the folder the run was writing in (" + staged + ") was removed while it worked, by another program or by hand; run again"
 		if !strings.HasPrefix(msg, want) || strings.Contains(msg, "database") {
 			t.Errorf("message %q, want it to begin %q", msg, want)
