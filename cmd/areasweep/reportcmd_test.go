@@ -180,3 +180,21 @@ func TestStoppedAsStagingStarts(t *testing.T) {
 		}
 	}
 }
+
+// TestReportStoppedNoteFromStart: the message of a signal that stops
+// areasweep report while it reads results.json (SIGINT 0.05 s after the
+// start) said "this run's partial results were removed and --out was left
+// as it was", although report has no --out; it names the report's folder
+// from the start.
+func TestReportStoppedNoteFromStart(t *testing.T) {
+	prev := stoppedNote.Load()
+	defer stoppedNote.Store(prev)
+	dir := t.TempDir() // no results.json: refused before anything is read
+	var out bytes.Buffer
+	if err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir}); err == nil {
+		t.Fatal("report of an empty folder succeeded")
+	}
+	if note := *stoppedNote.Load(); strings.Contains(note, "--out") || !strings.Contains(note, dir) {
+		t.Errorf("note %q", note)
+	}
+}

@@ -1,7 +1,6 @@
-package main
+package rerender
 
 import (
-	"bytes"
 	"maps"
 	"os"
 	"path/filepath"
@@ -14,7 +13,7 @@ import (
 	"areasweep/report"
 )
 
-// TestReportOnFullDisk: areasweep report on a folder whose disk is full,
+// TestReportOnFullDisk: Run (areasweep report) on a folder whose disk is full,
 // when the staging folder is made or while the report is drawn (as met on
 // a tmpfs filled to its last block, and on one a little smaller than the
 // report needs), exits 1 saying to free space; the first was refused as
@@ -37,13 +36,13 @@ func TestReportOnFullDisk(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			defer func(s func(string) (*outdir.Staged, error), w func(string, *report.Results) error) {
-				stageReport, writeReport = s, w
-			}(stageReport, writeReport)
+				stage, write = s, w
+			}(stage, write)
 			if tc.stage != nil {
-				stageReport = func(string) (*outdir.Staged, error) { return nil, tc.stage }
+				stage = func(string) (*outdir.Staged, error) { return nil, tc.stage }
 			}
 			if tc.write != nil {
-				writeReport = func(dir string, _ *report.Results) error {
+				write = func(dir string, _ *report.Results) error {
 					os.WriteFile(filepath.Join(dir, "report.html"), []byte("half"), 0o644)
 					return tc.write
 				}
@@ -52,8 +51,7 @@ func TestReportOnFullDisk(t *testing.T) {
 			sample := sampleResults(t)
 			os.WriteFile(filepath.Join(dir, "results.json"), []byte(sample), 0o644)
 			os.WriteFile(filepath.Join(dir, "report.html"), []byte("previous report"), 0o644)
-			var out bytes.Buffer
-			err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir, Force: true})
+			_, err := Run(Options{Dir: dir, Force: true})
 			if err == nil {
 				t.Fatal("report succeeded")
 			}
@@ -80,7 +78,7 @@ func TestReportOnFullDisk(t *testing.T) {
 	}
 }
 
-// TestReportLineBreak: areasweep report on a folder whose path holds a line
+// TestReportLineBreak: Run (areasweep report) on a folder whose path holds a line
 // break is refused on one line that says so, and the folder is left as it
 // was; the message said "cannot write in it (the path holds a line break);
 // re-render the report of a folder you can write to" with the line break
@@ -89,8 +87,7 @@ func TestReportLineBreak(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "run\n1")
 	os.Mkdir(dir, 0o755)
 	os.WriteFile(filepath.Join(dir, "results.json"), []byte(sampleResults(t)), 0o644)
-	var out bytes.Buffer
-	err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir, Force: true})
+	_, err := Run(Options{Dir: dir, Force: true})
 	if err == nil || !fault.IsBadInput(err) {
 		t.Fatalf("got %v, want bad input", err)
 	}
@@ -102,25 +99,7 @@ func TestReportLineBreak(t *testing.T) {
 	}
 }
 
-// TestReportStoppedNoteFromStart: the message of a signal that stops
-// areasweep report while it reads results.json (SIGINT 0.05 s after the
-// start) said "this run's partial results were removed and --out was left
-// as it was", although report has no --out; it names the report's folder
-// from the start.
-func TestReportStoppedNoteFromStart(t *testing.T) {
-	prev := stoppedNote.Load()
-	defer stoppedNote.Store(prev)
-	dir := t.TempDir() // no results.json: refused before anything is read
-	var out bytes.Buffer
-	if err := reportRun(&ReportOptions{IO: &IO{Out: &out, ErrOut: &out}, Dir: dir}); err == nil {
-		t.Fatal("report of an empty folder succeeded")
-	}
-	if note := *stoppedNote.Load(); strings.Contains(note, "--out") || !strings.Contains(note, dir) {
-		t.Errorf("note %q", note)
-	}
-}
-
-// TestPlaceReportAllOrNothing: a move of the report's files that failed
+// TestPlaceAllOrNothing: a move of the report's files that failed
 // part-way (report.html made immutable with chattr +i, after the figures
 // and methods.md were moved) said only "moving the report into im failed:
 // operation not permitted"; it then named the file and counted the files
@@ -133,7 +112,7 @@ func TestReportStoppedNoteFromStart(t *testing.T) {
 // the replaced figure and the stale page it removed back; a success
 // replaces the files and removes the stale page, and leaves the user's
 // own file in figures/.
-func TestPlaceReportAllOrNothing(t *testing.T) {
+func TestPlaceAllOrNothing(t *testing.T) {
 	setup := func(t *testing.T) (stage, dir string) {
 		stage, dir = t.TempDir(), t.TempDir()
 		os.MkdirAll(filepath.Join(stage, "figures"), 0o755)
@@ -167,7 +146,7 @@ func TestPlaceReportAllOrNothing(t *testing.T) {
 		stage, dir := setup(t)
 		os.MkdirAll(filepath.Join(dir, "report.html", "x"), 0o755)
 		moved := -1
-		err := placeReport(stage, dir, &moved)
+		err := place(stage, dir, &moved)
 		if err == nil || !strings.HasPrefix(err.Error(), "cannot replace "+filepath.Join(dir, "report.html")+" (") {
 			t.Fatalf("error %v, want it to name report.html", err)
 		}
@@ -182,7 +161,7 @@ func TestPlaceReportAllOrNothing(t *testing.T) {
 		stage, dir := setup(t)
 		os.Remove(filepath.Join(stage, "methods.md"))
 		moved := 0
-		if err := placeReport(stage, dir, &moved); err == nil || !strings.Contains(err.Error(), "methods.md") {
+		if err := place(stage, dir, &moved); err == nil || !strings.Contains(err.Error(), "methods.md") {
 			t.Fatalf("error %v, want it to name methods.md", err)
 		}
 		if moved != 0 {
@@ -195,7 +174,7 @@ func TestPlaceReportAllOrNothing(t *testing.T) {
 	t.Run("success", func(t *testing.T) {
 		stage, dir := setup(t)
 		moved := 0
-		if err := placeReport(stage, dir, &moved); err != nil {
+		if err := place(stage, dir, &moved); err != nil {
 			t.Fatal(err)
 		}
 		want := map[string]string{"figures/roc_curves.svg": "new", "figures/mine.txt": "user", "methods.md": "new", "report.html": "new"}
@@ -206,4 +185,15 @@ func TestPlaceReportAllOrNothing(t *testing.T) {
 			t.Errorf("stage holds %d entries, want only figures/ (the set-aside folder removed)", len(entries))
 		}
 	})
+}
+
+// sampleResults returns the report's sample results.json
+// (testdata/report/sample_results.json, made by gen_sample.py).
+func sampleResults(t *testing.T) string {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "report", "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
 }
