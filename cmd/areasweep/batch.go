@@ -14,7 +14,6 @@ import (
 	"areasweep/cmd/internal/batchrun"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
-	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 )
 
@@ -55,7 +54,7 @@ const batchExample = `  # start from the example table
   areasweep batch studies.csv --out /scratch/runs --slurm --submit`
 
 func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
-	opts := &BatchOptions{IO: streams, Options: batchrun.Options{Version: version, Validate: validateStudy}}
+	opts := &BatchOptions{IO: streams, Options: batchrun.Options{Version: version}}
 	var memory string
 	cmd := &cobra.Command{
 		Use:     "batch TABLE",
@@ -184,11 +183,4 @@ func swapStoppedNote(note string) (restore func()) {
 	prev := stoppedNote.Swap(&note)
 	was := inBatch.Swap(true)
 	return func() { stoppedNote.Store(prev); inBatch.Store(was) }
-}
-
-// validateStudy checks the settings of one study of a batch as run checks
-// its flags.
-func validateStudy(o *pipeline.Options) error {
-	ro := RunOptions{Options: *o}
-	return ro.validate()
 }

@@ -4,8 +4,6 @@ import (
 	"io"
 	"path/filepath"
 	"strconv"
-
-	"areasweep/cmd/internal/pipeline"
 )
 
 // Options are the batch's settings, as the command's flags give them.
@@ -35,11 +33,6 @@ type Options struct {
 	Slurm SlurmOptions
 	// Version is recorded in each study's results (pipeline.Options).
 	Version string
-	// Validate checks the settings of one study, a table row laid over
-	// the defaults, as the run command checks its flags; its message
-	// names the setting as a flag ("--seed ..."), which gives the table's
-	// column. Nil checks nothing.
-	Validate func(*pipeline.Options) error
 }
 
 // SlurmOptions turn a batch into a SLURM job array plus a merge job.

@@ -85,10 +85,10 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	po := pipeline.Options{Values: settings.Defaults()}
 	row.Study.Apply(&po.Values, func(string) bool { return false }) // no flag: the row and the shared block say all
 	po.Out = filepath.Join(out, row.ID)
-	if o.Validate != nil {
-		if err := o.Validate(&po); err != nil {
-			return nil, bad(flagColumn(err.Error()), err)
-		}
+	// Checked as run checks its flags: the message names the setting as
+	// a flag ("--seed ..."), which gives the table's column.
+	if err := po.Validate(); err != nil {
+		return nil, bad(flagColumn(err.Error()), err)
 	}
 	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
 	if col, err := missingInput(&po); err != nil {

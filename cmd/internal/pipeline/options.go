@@ -11,8 +11,8 @@ import (
 )
 
 // Options are the resolved settings of one run: the command fills them
-// from its flags and the study file (settings.Table) and validates them
-// before calling Run.
+// from its flags and the study file (settings.Table), batch from a table
+// row, and each checks them with Validate before calling Run.
 type Options struct {
 	settings.Values
 
