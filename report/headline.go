@@ -218,95 +218,12 @@ func headline(a *analysis, s *Sensitivity) string {
 	if len(s.ScoredExtents) == 0 {
 		return "No extent could be scored, so the scores cannot be compared across extents."
 	}
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, e := range a.extents {
-		for _, id := range s.ScoredExtents {
-			if id == e.ID {
-				lo, hi = math.Min(lo, e.AreaKm2), math.Max(hi, e.AreaKm2)
-			}
-		}
-	}
+	lo, hi := scoredAreaRange(a, s)
 	var b strings.Builder
 	if len(s.ScoredExtents) == 1 {
-		// One extent: there is nothing to compare it with, so no verdict.
-		fmt.Fprintf(&b, "Only one evaluation extent, %s (%s km², %s), could be scored, so no score can be compared across extents", s.ScoredExtents[0],
-			fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each"))
-		var parts []string
-		for _, m := range a.models {
-			if sp := s.findSpread("auc", m); sp != nil && sp.N > 0 {
-				parts = append(parts, fmt.Sprintf("%s %s", m, f3(sp.Min)))
-			}
-		}
-		if len(parts) > 0 {
-			fmt.Fprintf(&b, "; AUC there: %s", strings.Join(parts, ", "))
-		}
-		b.WriteString(".")
-	} else {
-		fmt.Fprintf(&b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
-		var parts []string
-		against := ""
-		for _, m := range a.models {
-			sp := s.findSpread("auc", m)
-			mv := s.findModelVerdict("auc", m)
-			if sp == nil || sp.N == 0 || mv == nil {
-				continue
-			}
-			against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
-			below := ""
-			if sp.Max < 0.5 {
-				// Worse than a random ranking everywhere (point estimates):
-				// the range alone leaves the reader to notice it.
-				below = " (below 0.5, the AUC of a random ranking, on every extent)"
-			}
-			parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
-		}
-		if len(parts) == 0 {
-			b.WriteString("no model has an AUC.")
-			return b.String()
-		}
-		b.WriteString(strings.Join(parts, "; "))
-		fmt.Fprintf(&b, ", against %s.", against)
-		if s.BaseExtent != vocab.BaseID {
-			// The verdicts' differences are taken from another extent:
-			// say so here, where a reader may stop.
-			fmt.Fprintf(&b, " Differences are taken from %s.", referenceText(s, "%s"))
-		}
-		nowhere := s.scoredNowhere()
-		if len(nowhere) > 0 {
-			fmt.Fprintf(&b, " Model%s %s %s not scored on any extent (Scores table).", Plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
-		}
-		if len(a.r.Settings.E) > 0 && len(a.models) > 0 {
-			key := MetricKeyPartialROC(a.r.Settings.E[0])
-			var mvs []ModelVerdict
-			for _, m := range a.models {
-				if slices.Contains(nowhere, m) {
-					continue
-				}
-				if mv := s.findModelVerdict(key, m); mv != nil {
-					mvs = append(mvs, *mv)
-				}
-			}
-			if pr := verdictsByJudgement(mvs); pr != "" {
-				// Every partial ROC difference comes from the paired
-				// resamples: with fewer than the cut-off none is judged,
-				// which is why it is undetermined.
-				// A model undefined on the base extent has no
-				// differences to judge: name the models the reason
-				// is about when it is not every one of them.
-				if n := a.r.Settings.PairedResamples; n < MinPercentileResamples {
-					if few := fewResampleModels(mvs); len(few) == len(mvs) {
-						pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
-					} else if len(few) > 0 {
-						pr += fmt.Sprintf(" (not judged for %s: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", joinList(few), n, Plural(n), MinPercentileResamples)
-					}
-				} else if few := fewPointModels(mvs); len(few) == len(mvs) {
-					pr += fmt.Sprintf(" (not judged: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", MinResampledPoints)
-				} else if len(few) > 0 {
-					pr += fmt.Sprintf(" (not judged for %s: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", joinList(few), MinResampledPoints)
-				}
-				fmt.Fprintf(&b, " The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
-			}
-		}
+		oneExtentHeadline(&b, a, s, lo)
+	} else if !manyExtentsHeadline(&b, a, s, lo, hi) {
+		return b.String()
 	}
 	var ranks []string
 	for _, r := range s.Rankings {
@@ -325,4 +242,117 @@ func headline(a *analysis, s *Sensitivity) string {
 		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score computed from the test points is likely optimistic.", pct(s.Independence.NearShare), NearCells)
 	}
 	return b.String()
+}
+
+// scoredAreaRange returns the smallest and largest area (km²) of the
+// scored extents.
+func scoredAreaRange(a *analysis, s *Sensitivity) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, e := range a.extents {
+		for _, id := range s.ScoredExtents {
+			if id == e.ID {
+				lo, hi = math.Min(lo, e.AreaKm2), math.Max(hi, e.AreaKm2)
+			}
+		}
+	}
+	return lo, hi
+}
+
+// oneExtentHeadline writes the headline of a study with one scored
+// extent (of area lo): there is nothing to compare it with, so no verdict.
+func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float64) {
+	fmt.Fprintf(b, "Only one evaluation extent, %s (%s km², %s), could be scored, so no score can be compared across extents", s.ScoredExtents[0],
+		fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each"))
+	var parts []string
+	for _, m := range a.models {
+		if sp := s.findSpread("auc", m); sp != nil && sp.N > 0 {
+			parts = append(parts, fmt.Sprintf("%s %s", m, f3(sp.Min)))
+		}
+	}
+	if len(parts) > 0 {
+		fmt.Fprintf(b, "; AUC there: %s", strings.Join(parts, ", "))
+	}
+	b.WriteString(".")
+}
+
+// manyExtentsHeadline writes the headline's sentences on the models'
+// AUC across the scored extents (areas lo to hi) and the partial ROC
+// ratio's verdicts; false when no model has an AUC (the headline ends
+// there).
+func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi float64) bool {
+	fmt.Fprintf(b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
+	var parts []string
+	against := ""
+	for _, m := range a.models {
+		sp := s.findSpread("auc", m)
+		mv := s.findModelVerdict("auc", m)
+		if sp == nil || sp.N == 0 || mv == nil {
+			continue
+		}
+		against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
+		below := ""
+		if sp.Max < 0.5 {
+			// Worse than a random ranking everywhere (point estimates):
+			// the range alone leaves the reader to notice it.
+			below = " (below 0.5, the AUC of a random ranking, on every extent)"
+		}
+		parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
+	}
+	if len(parts) == 0 {
+		b.WriteString("no model has an AUC.")
+		return false
+	}
+	b.WriteString(strings.Join(parts, "; "))
+	fmt.Fprintf(b, ", against %s.", against)
+	if s.BaseExtent != vocab.BaseID {
+		// The verdicts' differences are taken from another extent:
+		// say so here, where a reader may stop.
+		fmt.Fprintf(b, " Differences are taken from %s.", referenceText(s, "%s"))
+	}
+	nowhere := s.scoredNowhere()
+	if len(nowhere) > 0 {
+		fmt.Fprintf(b, " Model%s %s %s not scored on any extent (Scores table).", Plural(len(nowhere)), joinList(nowhere), map[bool]string{true: "is", false: "are"}[len(nowhere) == 1])
+	}
+	b.WriteString(partialROCHeadline(a, s, nowhere))
+	return true
+}
+
+// partialROCHeadline returns the headline's sentence on the partial ROC
+// ratio's verdicts at the first E, the models scored nowhere left out, and
+// why they are not judged where they are not; "" when there is none.
+func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
+	if len(a.r.Settings.E) == 0 || len(a.models) == 0 {
+		return ""
+	}
+	key := MetricKeyPartialROC(a.r.Settings.E[0])
+	var mvs []ModelVerdict
+	for _, m := range a.models {
+		if slices.Contains(nowhere, m) {
+			continue
+		}
+		if mv := s.findModelVerdict(key, m); mv != nil {
+			mvs = append(mvs, *mv)
+		}
+	}
+	pr := verdictsByJudgement(mvs)
+	if pr == "" {
+		return ""
+	}
+	// Every partial ROC difference comes from the paired resamples: with
+	// fewer than the cut-off none is judged, which is why it is
+	// undetermined. A model undefined on the base extent has no
+	// differences to judge: name the models the reason is about when it
+	// is not every one of them.
+	if n := a.r.Settings.PairedResamples; n < MinPercentileResamples {
+		if few := fewResampleModels(mvs); len(few) == len(mvs) {
+			pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
+		} else if len(few) > 0 {
+			pr += fmt.Sprintf(" (not judged for %s: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", joinList(few), n, Plural(n), MinPercentileResamples)
+		}
+	} else if few := fewPointModels(mvs); len(few) == len(mvs) {
+		pr += fmt.Sprintf(" (not judged: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", MinResampledPoints)
+	} else if len(few) > 0 {
+		pr += fmt.Sprintf(" (not judged for %s: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", joinList(few), MinResampledPoints)
+	}
+	return fmt.Sprintf(" The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
 }
