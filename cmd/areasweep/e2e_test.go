@@ -555,6 +555,7 @@ func TestDemo(t *testing.T) {
 			t.Errorf("demo output %s missing", f)
 		}
 	}
+	validGeoPackages(t, filepath.Join(out, "extents.gpkg"), filepath.Join(out, "omitted_points.gpkg"))
 	// Re-render from results.json: refused without --force, since the
 	// report files exist; with --force the same bytes come back.
 	before, _ := os.ReadFile(filepath.Join(out, "report.html"))
@@ -975,4 +976,30 @@ func replaceArg(args []string, old, new string) []string {
 		}
 	}
 	return args
+}
+
+// gpkgValidator is GDAL's GeoPackage validator (osgeo_utils, in Debian's
+// python3-gdal, installed by setup.sh --test), run by Debian's own Python.
+const gpkgValidator = "/usr/lib/python3/dist-packages/osgeo_utils/samples/validate_gpkg.py"
+
+// validGeoPackages checks each GeoPackage in paths against GDAL's
+// validator of the OGC GeoPackage requirements (it exits 1 naming the
+// first requirement a file breaks), in a subtest of its own, which is
+// skipped only outside CI when the validator is not installed.
+func validGeoPackages(t *testing.T, paths ...string) {
+	t.Helper()
+	t.Run("GeoPackages valid (GDAL's validate_gpkg)", func(t *testing.T) {
+		if _, err := os.Stat(gpkgValidator); err != nil {
+			if os.Getenv("CI") == "true" {
+				t.Fatalf("%s not found: CI must install Debian's python3-gdal (scripts/setup.sh --test)", gpkgValidator)
+			}
+			t.Skipf("%s not found: install Debian's python3-gdal to run this check (a skip is not a pass)", gpkgValidator)
+		}
+		for _, p := range paths {
+			out, err := exec.Command("/usr/bin/python3", gpkgValidator, p).CombinedOutput()
+			if err != nil || len(bytes.TrimSpace(out)) > 0 {
+				t.Errorf("%s: validate_gpkg says (%v): %s", filepath.Base(p), err, out)
+			}
+		}
+	})
 }

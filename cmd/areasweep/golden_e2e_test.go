@@ -372,6 +372,7 @@ func TestEndToEndGolden(t *testing.T) {
 			res := loadResults(t, filepath.Join(dir, "out"))
 			names, bands := readBands(t, filepath.Join(dir, "out", "extents.tif"))
 			checkE2E(t, st, res, names, bands)
+			validGeoPackages(t, filepath.Join(dir, "out", "extents.gpkg"), filepath.Join(dir, "out", "omitted_points.gpkg"))
 		})
 	}
 }
