@@ -7,7 +7,7 @@ set -euo pipefail
 
 want=(libgdal-dev gdal-bin proj-bin pkg-config gcc)
 if [ "${1:-}" = "--test" ]; then
-  want+=(python3-sklearn python3-scipy python3-numpy python3-pyproj python3-gdal r-cran-proc chromium fonts-liberation2)
+  want+=(python3-sklearn python3-scipy python3-numpy python3-pyproj python3-gdal r-cran-proc chromium fonts-liberation2 poppler-utils)
   # The scheduler test starts a one-node SLURM cluster (scripts/slurm-local.sh).
   want+=(slurmctld slurmd slurm-client munge)
 fi
