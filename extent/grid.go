@@ -47,16 +47,44 @@ var registerOnce sync.Once
 //	                       of 256 x 256 Float32 tiles 16,000 cells wide,
 //	                       which a virtual raster (VRT) whose blocks do not
 //	                       line up with its sources' tiles reads again for
-//	                       the next block row; a user's value is kept
+//	                       the next block row; a user's value is kept,
+//	                       except a negative number, which GDAL refuses
+//	                       with an error at the first block read (as
+//	                       BlockCacheBytes counts it: BlockCacheMB)
+//	CPL_DEBUG=OFF          a user's CPL_DEBUG=ON would make the GDAL
+//	                       binding print GDAL's debug lines on standard
+//	                       error
+//	OGR_SQLITE_JOURNAL, OGR_SQLITE_PRAGMA
+//	                       unset: a user's journal mode (WAL) or pragmas
+//	                       (page_size) would change the bytes of the
+//	                       GeoPackages written
 func Configure() {
 	os.Setenv("GDAL_PAM_ENABLED", "NO")
 	if os.Getenv("OGR_CURRENT_DATE") == "" {
 		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
 	}
-	if os.Getenv("GDAL_CACHEMAX") == "" {
+	if v := os.Getenv("GDAL_CACHEMAX"); v == "" || cacheMaxNegative(v) {
 		os.Setenv("GDAL_CACHEMAX", strconv.Itoa(BlockCacheMB))
 	}
+	os.Setenv("CPL_DEBUG", "OFF")
+	os.Unsetenv("OGR_SQLITE_JOURNAL")
+	os.Unsetenv("OGR_SQLITE_PRAGMA")
 	Register()
+}
+
+// cacheMaxNegative reports whether GDAL reads v as a negative
+// GDAL_CACHEMAX, which it refuses: without a "%", GDAL 3.6 reads the
+// leading integer as atoll does (spaces, a sign, digits; "-5MB" is -5).
+func cacheMaxNegative(v string) bool {
+	if strings.Contains(v, "%") {
+		return false
+	}
+	s, ok := strings.CutPrefix(strings.TrimLeft(v, " \t\n\v\f\r"), "-")
+	if !ok {
+		return false
+	}
+	digits := len(s) - len(strings.TrimLeft(s, "0123456789"))
+	return strings.Trim(s[:digits], "0") != ""
 }
 
 // BlockCacheMB is the size (MB) of GDAL's block cache that Configure sets

@@ -1,0 +1,81 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestUserGDALEnvironment: GDAL settings a user may have in the
+// environment neither change the outputs nor put GDAL's own text on the
+// terminal. Each case ran the small study differently before:
+//
+//   - CPL_DEBUG=ON: GDAL's debug lines ("GDAL: GDAL: GDALOpen(...)
+//     succeeds as GTiff.") were printed on standard error by the GDAL
+//     binding, 30 to 130 of them a run;
+//   - OGR_SQLITE_JOURNAL=WAL, OGR_SQLITE_PRAGMA=page_size=1024: the
+//     GeoPackages were written in another journal mode or page size, so
+//     extents.gpkg and omitted_points.gpkg were not the bytes of the same
+//     run without them (the README promises the same bytes);
+//   - GDAL_CACHEMAX=-5 (any negative number): GDAL raised "Invalid value
+//     for GDAL_CACHEMAX. Using default value" at the first block read,
+//     which failed the run (exit 2) blaming the model as damaged.
+//
+// The expected outputs are those of the same run without the variable.
+func TestUserGDALEnvironment(t *testing.T) {
+	s := newSmallStudy(t)
+	files := func(dir string) map[string][]byte {
+		m := map[string][]byte{}
+		filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+			if err != nil || d.IsDir() || d.Name() == "run.log" {
+				return err
+			}
+			rel, _ := filepath.Rel(dir, p)
+			m[rel], _ = os.ReadFile(p)
+			return nil
+		})
+		return m
+	}
+	ref := filepath.Join(s.dir, "ref")
+	if _, se, code := runBin(t, s.args(ref)...); code != 0 {
+		t.Fatalf("reference run: exit %d: %s", code, se)
+	}
+	want := files(ref)
+	for _, tc := range []struct{ name, key, value string }{
+		{"debug", "CPL_DEBUG", "ON"},
+		{"wal", "OGR_SQLITE_JOURNAL", "WAL"},
+		{"pragma", "OGR_SQLITE_PRAGMA", "page_size=1024"},
+		{"cachemax", "GDAL_CACHEMAX", "-5"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Setenv(tc.key, tc.value) // the binary inherits it
+			out := filepath.Join(s.dir, tc.name)
+			// Without --quiet: the progress lines are on standard error,
+			// where a library's own lines would show.
+			args := s.args(out)
+			args = args[:len(args)-3]
+			args = append(args, "--out", out)
+			_, se, code := runBin(t, args...)
+			if code != 0 {
+				t.Fatalf("%s=%s: exit %d: %s", tc.key, tc.value, code, se)
+			}
+			for _, l := range strings.Split(se, "\n") {
+				if strings.HasPrefix(l, "GDAL:") || strings.Contains(l, "GDAL_CACHEMAX") {
+					t.Errorf("%s=%s: a library's line on standard error: %s", tc.key, tc.value, l)
+					break
+				}
+			}
+			got := files(out)
+			for name, b := range want {
+				if !bytes.Equal(got[name], b) {
+					t.Errorf("%s=%s: %s differs from the run without it", tc.key, tc.value, name)
+				}
+			}
+			if len(got) != len(want) {
+				t.Errorf("%s=%s: %d files, want %d", tc.key, tc.value, len(got), len(want))
+			}
+		})
+	}
+}
