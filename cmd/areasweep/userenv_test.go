@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -75,6 +76,56 @@ func TestUserGDALEnvironment(t *testing.T) {
 			}
 			if len(got) != len(want) {
 				t.Errorf("%s=%s: %d files, want %d", tc.key, tc.value, len(got), len(want))
+			}
+		})
+	}
+}
+
+// TestBrokenPipe: a run whose standard error (or output) is a pipe that
+// its reader closed, as with `areasweep run ... 2>&1 | head`, used to be
+// killed by SIGPIPE at its next progress line (exit 141), leaving its
+// staging folder and lock file beside --out and no outputs. A broken pipe
+// now only loses the lines (run.log keeps them): the run finishes, exit 0,
+// with the outputs of the same run written to a terminal.
+func TestBrokenPipe(t *testing.T) {
+	s := newSmallStudy(t)
+	ref := filepath.Join(s.dir, "ref")
+	if _, se, code := runBin(t, s.args(ref)...); code != 0 {
+		t.Fatalf("reference run: exit %d: %s", code, se)
+	}
+	want, _ := os.ReadFile(filepath.Join(ref, "results.json"))
+	for _, stream := range []string{"stderr", "stdout"} {
+		t.Run(stream, func(t *testing.T) {
+			out := filepath.Join(s.dir, stream)
+			args := s.args(out)
+			args = args[:len(args)-3] // without --quiet: the progress lines
+			args = append(args, "--out", out)
+			r, w, err := os.Pipe()
+			if err != nil {
+				t.Fatal(err)
+			}
+			r.Close() // the reader is gone before the first line
+			cmd := exec.Command(areasweepBin, args...)
+			var other bytes.Buffer
+			if stream == "stderr" {
+				cmd.Stderr, cmd.Stdout = w, &other
+			} else {
+				cmd.Stdout, cmd.Stderr = w, &other
+			}
+			err = cmd.Run()
+			w.Close()
+			if code := exitCode(err); code != 0 {
+				t.Fatalf("exit %d (%v), want 0; other stream:\n%s", code, err, other.String())
+			}
+			got, _ := os.ReadFile(filepath.Join(out, "results.json"))
+			if len(got) == 0 || !bytes.Equal(got, want) {
+				t.Error("results.json missing or not that of the same run")
+			}
+			entries, _ := os.ReadDir(s.dir)
+			for _, e := range entries {
+				if strings.HasPrefix(e.Name(), "."+stream+".") {
+					t.Errorf("left beside --out: %s", e.Name())
+				}
 			}
 		})
 	}
