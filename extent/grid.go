@@ -115,6 +115,32 @@ func BlockCacheBytes(physical int64) int64 {
 	return n
 }
 
+// CheckPROJ reports, in a user's words, a PROJ that cannot make WGS84
+// (EPSG:4326) from its database, proj.db: every coordinate system a run
+// meets goes through it. It fails when PROJ_DATA or PROJ_LIB in the
+// environment names a folder without PROJ's database (PROJ's own words:
+// "proj_create_from_database: Cannot find proj.db"), or without that
+// variable when PROJ's data is not installed.
+func CheckPROJ() error {
+	Register()
+	sr, err := godal.NewSpatialRefFromEPSG(4326)
+	if err == nil {
+		sr.Close()
+		return nil
+	}
+	cause := gdalmsg.Cause(err.Error())
+	var set []string
+	for _, k := range []string{"PROJ_DATA", "PROJ_LIB"} {
+		if v, ok := os.LookupEnv(k); ok {
+			set = append(set, fmt.Sprintf("%s=%q", k, v))
+		}
+	}
+	if len(set) > 0 {
+		return fmt.Errorf("PROJ, the library that handles coordinate systems, cannot read its database (%s) with %s in the environment: unset it, or point it to the folder that holds the proj.db of the PROJ installed with GDAL", cause, strings.Join(set, " and "))
+	}
+	return fmt.Errorf("PROJ, the library that handles coordinate systems, cannot read its database (%s): install its data (the proj-data package on Debian and Ubuntu), or set PROJ_DATA to the folder that holds proj.db", cause)
+}
+
 // Register makes GDAL's drivers available. It is safe to call many times
 // and sets no configuration (see Configure).
 func Register() {

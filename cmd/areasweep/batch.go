@@ -16,6 +16,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
+	"areasweep/extent"
 )
 
 // BatchOptions runs every study of a study table: the command's streams,
@@ -175,6 +176,13 @@ func validateSlurm(o *batchrun.SlurmOptions) error {
 // batchRun runs the batch (package batchrun) with the command's streams;
 // while its studies run, a stop signal's message says what they leave.
 func batchRun(ctx context.Context, o *BatchOptions) error {
+	if !o.SummaryOnly && !o.Slurm.Enabled {
+		// Every study needs PROJ: refused once, before anything runs,
+		// rather than each study failing with PROJ's own words.
+		if err := extent.CheckPROJ(); err != nil {
+			return fault.BadInput(err)
+		}
+	}
 	return batchrun.Run(ctx, &o.Options, batchrun.IO{Out: o.IO.Out, ErrOut: o.IO.ErrOut, StopNote: swapStoppedNote})
 }
 

@@ -130,3 +130,54 @@ func TestBrokenPipe(t *testing.T) {
 		})
 	}
 }
+
+// TestPROJDataMissing: PROJ_DATA or PROJ_LIB in the environment naming a
+// folder without PROJ's database (proj.db) failed run with PROJ's own
+// text, blaming the model ("model m: PATH: PROJ cannot make EPSG:4326 (is
+// proj-data installed?): PROJ: proj_create_from_database: Cannot find
+// proj.db"), the demo with exit 1 as a failed write of its folder, and a
+// batch study by study (exit 1). Each now refuses before anything is
+// written (exit 2), in one line naming the variable and what to do.
+func TestPROJDataMissing(t *testing.T) {
+	s := newSmallStudy(t)
+	empty := t.TempDir()
+	table := filepath.Join(s.dir, "studies.csv")
+	os.WriteFile(table, []byte("id,model,occurrences,region\nsp1,m="+s.model+","+s.occ+","+s.region+"\n"), 0o644)
+	for _, tc := range []struct {
+		name, env string
+		args      func(out string) []string
+	}{
+		{"run PROJ_DATA missing", "PROJ_DATA=" + filepath.Join(empty, "gone"), func(out string) []string { return s.args(out) }},
+		{"run PROJ_LIB empty", "PROJ_LIB=" + empty, func(out string) []string { return s.args(out) }},
+		{"extents", "PROJ_DATA=" + empty, func(out string) []string { return append([]string{"extents"}, s.args(out)[1:]...) }},
+		{"demo", "PROJ_DATA=" + empty, func(out string) []string { return []string{"demo", "--quiet", "--out", out} }},
+		{"batch", "PROJ_DATA=" + empty, func(out string) []string { return []string{"batch", table, "--quiet", "--out", out} }},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(s.dir, strings.ReplaceAll(tc.name, " ", "_"))
+			cmd := exec.Command(areasweepBin, tc.args(out)...)
+			cmd.Env = append(os.Environ(), tc.env)
+			var so, se bytes.Buffer
+			cmd.Stdout, cmd.Stderr = &so, &se
+			if code := exitCode(cmd.Run()); code != 2 {
+				t.Fatalf("exit %d, want 2; stderr:\n%s", code, se.String())
+			}
+			lines := strings.Split(strings.TrimSpace(se.String()), "\n")
+			if len(lines) != 1 || !strings.HasPrefix(lines[0], "areasweep: PROJ") {
+				t.Errorf("stderr is not one areasweep: line about PROJ:\n%s", se.String())
+			}
+			key, _, _ := strings.Cut(tc.env, "=")
+			for _, want := range []string{key + "=", "proj.db", "unset it"} {
+				if !strings.Contains(se.String(), want) {
+					t.Errorf("stderr does not say %q:\n%s", want, se.String())
+				}
+			}
+			if strings.Contains(se.String(), "proj_create") || strings.Contains(se.String(), "model m") {
+				t.Errorf("stderr holds PROJ's words or blames the model:\n%s", se.String())
+			}
+			if _, err := os.Stat(out); !os.IsNotExist(err) {
+				t.Errorf("%s was created", out)
+			}
+		})
+	}
+}

@@ -125,6 +125,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
 	for _, step := range []func() error{
+		checkPROJ,
 		s.checkFiles,
 		s.openGrid,
 		s.checkMemory,
@@ -168,6 +169,16 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		return nil, err
 	}
 	return s, nil
+}
+
+// checkPROJ refuses a PROJ without its database (a PROJ_DATA naming a
+// folder without proj.db) before any input is read: the model's CRS
+// would otherwise be blamed with PROJ's own words.
+func checkPROJ() error {
+	if err := extent.CheckPROJ(); err != nil {
+		return fault.BadInput(err)
+	}
+	return nil
 }
 
 // Close removes the staging folder unless Finish moved it into place; it
