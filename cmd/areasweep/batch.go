@@ -14,6 +14,7 @@ import (
 	"areasweep/cmd/internal/batchrun"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/extent"
@@ -176,6 +177,9 @@ func validateSlurm(o *batchrun.SlurmOptions) error {
 // batchRun runs the batch (package batchrun) with the command's streams;
 // while its studies run, a stop signal's message says what they leave.
 func batchRun(ctx context.Context, o *BatchOptions) error {
+	if err := outdir.CheckUmask(); err != nil {
+		return err
+	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
 		// Every study needs PROJ: refused once, before anything runs,
 		// rather than each study failing with PROJ's own words.
