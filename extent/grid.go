@@ -115,6 +115,59 @@ func BlockCacheBytes(physical int64) int64 {
 	return n
 }
 
+// CheckSetup reports, in a user's words, a GDAL or PROJ that the
+// environment made unable to run areasweep: CheckDrivers, then CheckPROJ.
+func CheckSetup() error {
+	if err := CheckDrivers(); err != nil {
+		return err
+	}
+	return CheckPROJ()
+}
+
+// neededDrivers are GDAL's drivers areasweep itself uses: GTiff for the
+// demo's models and extents.tif (and most models), GPKG for every
+// GeoPackage it writes, Memory (vector) for layers with curves.
+var neededDrivers = []struct {
+	name   godal.DriverName
+	vector bool
+	what   string
+}{
+	{godal.GTiff, false, "GeoTIFF rasters"},
+	{godal.GeoPackage, true, "GeoPackages"},
+	{godal.Memory, true, "layers in memory"},
+}
+
+// CheckDrivers reports a driver of neededDrivers that is not registered:
+// GDAL_SKIP (or OGR_SKIP) in the environment names it. The run would
+// otherwise refuse every GeoTIFF as "not a raster GDAL can read", or read
+// a GeoPackage with GDAL's plain SQLite driver and refuse its first table
+// as "gpkg_contents has no geometry".
+func CheckDrivers() error {
+	Register()
+	for _, d := range neededDrivers {
+		var ok bool
+		if d.vector {
+			_, ok = godal.VectorDriver(d.name)
+		} else {
+			_, ok = godal.RasterDriver(d.name)
+		}
+		if ok {
+			continue
+		}
+		var set []string
+		for _, k := range []string{"GDAL_SKIP", "OGR_SKIP"} {
+			if v, ok := os.LookupEnv(k); ok {
+				set = append(set, fmt.Sprintf("%s=%q", k, v))
+			}
+		}
+		if len(set) > 0 {
+			return fmt.Errorf("GDAL's %s driver, which areasweep needs for %s, is turned off by %s in the environment: take %s out of it (or unset it) and run again", d.name, d.what, strings.Join(set, " and "), d.name)
+		}
+		return fmt.Errorf("GDAL's %s driver, which areasweep needs for %s, is missing from the installed GDAL: install a GDAL built with it (Debian's libgdal has it)", d.name, d.what)
+	}
+	return nil
+}
+
 // CheckPROJ reports, in a user's words, a PROJ that cannot make WGS84
 // (EPSG:4326) from its database, proj.db: every coordinate system a run
 // meets goes through it. It fails when PROJ_DATA or PROJ_LIB in the

@@ -181,9 +181,9 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 		return err
 	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
-		// Every study needs PROJ: refused once, before anything runs,
-		// rather than each study failing with PROJ's own words.
-		if err := extent.CheckPROJ(); err != nil {
+		// Every study needs GDAL's drivers and PROJ: refused once, before
+		// anything runs, rather than each study failing in their words.
+		if err := extent.CheckSetup(); err != nil {
 			return fault.BadInput(err)
 		}
 	}

@@ -181,3 +181,57 @@ func TestPROJDataMissing(t *testing.T) {
 		})
 	}
 }
+
+// TestGDALSkipNeededDriver: GDAL_SKIP (or OGR_SKIP) naming a driver
+// areasweep needs refused the inputs in misleading words: with GTiff
+// skipped every model was "not a raster GDAL can read ... check that it
+// opens in a GIS", with GPKG skipped the region GeoPackage was read by
+// GDAL's plain SQLite driver and refused as 'layer "gpkg_contents" has no
+// geometry'. Each now refuses before anything is written (exit 2), naming
+// the driver and the variable; a driver areasweep does not need may be
+// skipped as before.
+func TestGDALSkipNeededDriver(t *testing.T) {
+	s := newSmallStudy(t)
+	table := filepath.Join(s.dir, "studies.csv")
+	os.WriteFile(table, []byte("id,model,occurrences,region\nsp1,m="+s.model+","+s.occ+","+s.region+"\n"), 0o644)
+	for _, tc := range []struct {
+		name, env, driver string
+		args              func(out string) []string
+	}{
+		{"run GTiff", "GDAL_SKIP=GTiff", "GTiff", func(out string) []string { return s.args(out) }},
+		{"run GPKG", "GDAL_SKIP=SQLite GPKG", "GPKG", func(out string) []string { return s.args(out) }},
+		{"run OGR_SKIP", "OGR_SKIP=GPKG", "GPKG", func(out string) []string { return s.args(out) }},
+		{"demo", "GDAL_SKIP=GTiff", "GTiff", func(out string) []string { return []string{"demo", "--quiet", "--out", out} }},
+		{"batch", "GDAL_SKIP=GPKG", "GPKG", func(out string) []string { return []string{"batch", table, "--quiet", "--out", out} }},
+		{"run JP2OpenJPEG", "GDAL_SKIP=JP2OpenJPEG", "", func(out string) []string { return s.args(out) }},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			out := filepath.Join(s.dir, strings.ReplaceAll(tc.name, " ", "_"))
+			cmd := exec.Command(areasweepBin, tc.args(out)...)
+			cmd.Env = append(os.Environ(), tc.env)
+			var se bytes.Buffer
+			cmd.Stderr = &se
+			code := exitCode(cmd.Run())
+			if tc.driver == "" {
+				if code != 0 {
+					t.Fatalf("exit %d, want 0; stderr:\n%s", code, se.String())
+				}
+				return
+			}
+			if code != 2 {
+				t.Fatalf("exit %d, want 2; stderr:\n%s", code, se.String())
+			}
+			lines := strings.Split(strings.TrimSpace(se.String()), "\n")
+			if len(lines) != 1 || !strings.HasPrefix(lines[0], "areasweep: GDAL's "+tc.driver+" driver") {
+				t.Errorf("stderr is not one areasweep: line about the %s driver:\n%s", tc.driver, se.String())
+			}
+			key, _, _ := strings.Cut(tc.env, "=")
+			if !strings.Contains(se.String(), key+"=") {
+				t.Errorf("stderr does not name %s:\n%s", key, se.String())
+			}
+			if _, err := os.Stat(out); !os.IsNotExist(err) {
+				t.Errorf("%s was created", out)
+			}
+		})
+	}
+}

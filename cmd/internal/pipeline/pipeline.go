@@ -125,7 +125,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
 	for _, step := range []func() error{
-		checkPROJ,
+		checkSetup,
 		s.checkFiles,
 		s.openGrid,
 		s.checkMemory,
@@ -171,11 +171,12 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	return s, nil
 }
 
-// checkPROJ refuses a PROJ without its database (a PROJ_DATA naming a
-// folder without proj.db) before any input is read: the model's CRS
-// would otherwise be blamed with PROJ's own words.
-func checkPROJ() error {
-	if err := extent.CheckPROJ(); err != nil {
+// checkSetup refuses, before any input is read, a GDAL whose drivers
+// areasweep needs are turned off (GDAL_SKIP) and a PROJ without its
+// database (a PROJ_DATA naming a folder without proj.db): the inputs
+// would otherwise be blamed, in the libraries' words.
+func checkSetup() error {
+	if err := extent.CheckSetup(); err != nil {
 		return fault.BadInput(err)
 	}
 	return nil
