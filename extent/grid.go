@@ -58,6 +58,11 @@ var registerOnce sync.Once
 //	                       unset: a user's journal mode (WAL) or pragmas
 //	                       (page_size) would change the bytes of the
 //	                       GeoPackages written
+//	OSR_WKT_FORMAT, GDAL_TIFF_ENDIANNESS
+//	                       unset: a user's WKT1_ESRI would drop the EPSG
+//	                       code of the grid's CRS in results.json and
+//	                       write other CRS text in the GeoPackages, and
+//	                       BIG would write extents.tif in other bytes
 func Configure() {
 	os.Setenv("GDAL_PAM_ENABLED", "NO")
 	if os.Getenv("OGR_CURRENT_DATE") == "" {
@@ -69,6 +74,8 @@ func Configure() {
 	os.Setenv("CPL_DEBUG", "OFF")
 	os.Unsetenv("OGR_SQLITE_JOURNAL")
 	os.Unsetenv("OGR_SQLITE_PRAGMA")
+	os.Unsetenv("OSR_WKT_FORMAT")
+	os.Unsetenv("GDAL_TIFF_ENDIANNESS")
 	Register()
 }
 

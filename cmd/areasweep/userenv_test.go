@@ -20,6 +20,9 @@ import (
 //     GeoPackages were written in another journal mode or page size, so
 //     extents.gpkg and omitted_points.gpkg were not the bytes of the same
 //     run without them (the README promises the same bytes);
+//   - OSR_WKT_FORMAT=WKT1_ESRI: results.json recorded the grid's CRS as
+//     ESRI WKT rather than EPSG:4326, and the GeoPackages held other CRS
+//     text; GDAL_TIFF_ENDIANNESS=BIG wrote extents.tif big-endian;
 //   - GDAL_CACHEMAX=-5 (any negative number): GDAL raised "Invalid value
 //     for GDAL_CACHEMAX. Using default value" at the first block read,
 //     which failed the run (exit 2) blaming the model as damaged.
@@ -49,6 +52,8 @@ func TestUserGDALEnvironment(t *testing.T) {
 		{"wal", "OGR_SQLITE_JOURNAL", "WAL"},
 		{"pragma", "OGR_SQLITE_PRAGMA", "page_size=1024"},
 		{"cachemax", "GDAL_CACHEMAX", "-5"},
+		{"wkt", "OSR_WKT_FORMAT", "WKT1_ESRI"},
+		{"endianness", "GDAL_TIFF_ENDIANNESS", "BIG"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Setenv(tc.key, tc.value) // the binary inherits it
