@@ -240,3 +240,38 @@ func TestGDALSkipNeededDriver(t *testing.T) {
 		})
 	}
 }
+
+// TestRunTMPDIRUnusableFailsEarly: a run whose temporary folder the PDF
+// figures cannot use (TMPDIR missing) failed only once the report was
+// drawn, after the whole scoring ("report written ..." then "writing the
+// results into OUT failed: the PDF figures need the temporary folder
+// ..."): hours lost on a large study. It now fails before any work, on one
+// line (exit 1, as README's exit codes say), with nothing created; the
+// extents command, which draws no figure, still runs.
+func TestRunTMPDIRUnusableFailsEarly(t *testing.T) {
+	s := newSmallStudy(t)
+	tmp := filepath.Join(t.TempDir(), "gone")
+	out := filepath.Join(s.dir, "out")
+	args := s.args(out)
+	args = args[:len(args)-3] // without --quiet: the progress lines
+	args = append(args, "--out", out)
+	cmd := exec.Command(areasweepBin, args...)
+	cmd.Env = append(os.Environ(), "TMPDIR="+tmp)
+	var se bytes.Buffer
+	cmd.Stderr = &se
+	if code := exitCode(cmd.Run()); code != 1 {
+		t.Fatalf("exit %d, want 1; stderr:\n%s", code, se.String())
+	}
+	lines := strings.Split(strings.TrimSpace(se.String()), "\n")
+	if len(lines) != 1 || !strings.HasPrefix(lines[0], "areasweep: the PDF figures need the temporary folder "+tmp+" (TMPDIR)") {
+		t.Errorf("stderr is not the one line about TMPDIR:\n%s", se.String())
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("%s was created", out)
+	}
+	ext := exec.Command(areasweepBin, append([]string{"extents"}, s.args(filepath.Join(s.dir, "ext"))[1:]...)...)
+	ext.Env = cmd.Env
+	if b, err := ext.CombinedOutput(); err != nil {
+		t.Errorf("extents with TMPDIR missing: %v\n%s", err, b)
+	}
+}

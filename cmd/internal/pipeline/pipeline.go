@@ -126,6 +126,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	s.dir = d
 	for _, step := range []func() error{
 		checkSetup,
+		s.checkTempDir,
 		s.checkFiles,
 		s.openGrid,
 		s.checkMemory,
@@ -178,6 +179,19 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 func checkSetup() error {
 	if err := extent.CheckSetup(); err != nil {
 		return fault.BadInput(err)
+	}
+	return nil
+}
+
+// checkTempDir fails a run that draws figures (not extents, not a
+// shard) whose temporary folder the PDF figures cannot use, before any
+// work: it failed at the end, after the scoring (exit 1 all the same).
+func (s *Study) checkTempDir() error {
+	if s.o.ExtentsOnly || s.o.Shard {
+		return nil
+	}
+	if err := report.CheckTempDir(); err != nil {
+		return fmt.Errorf("%w; nothing was written", err)
 	}
 	return nil
 }
