@@ -6,7 +6,10 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+
+	"github.com/airbusgeo/godal"
 )
 
 // TestUserGDALEnvironment: GDAL settings a user may have in the
@@ -273,5 +276,162 @@ func TestRunTMPDIRUnusableFailsEarly(t *testing.T) {
 	ext.Env = cmd.Env
 	if b, err := ext.CombinedOutput(); err != nil {
 		t.Errorf("extents with TMPDIR missing: %v\n%s", err, b)
+	}
+}
+
+// walEnv names the GeoPackage TestHelperPendingWAL writes to.
+const walEnv = "AREASWEEP_TEST_PENDING_WAL"
+
+// TestHelperPendingWAL is not a test: run as a child process by
+// TestInputWithPendingWAL, it switches the GeoPackage named by walEnv to
+// WAL mode, commits a change and exits without closing it, as a program
+// (QGIS) does that still has the file open or was stopped: the change is
+// left in the file's -wal beside it.
+func TestHelperPendingWAL(t *testing.T) {
+	path := os.Getenv(walEnv)
+	if path == "" {
+		t.Skip("run by TestInputWithPendingWAL")
+	}
+	ds, err := godal.Open(path, godal.Update(), godal.VectorOnly(), godal.ConfigOption("OGR_SQLITE_JOURNAL=WAL"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if os.Getenv(walEnv+"_CLOSE") != "" {
+		// Only switch it to WAL mode (kept in its header), closed as
+		// usual: no -wal file stays.
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		os.Exit(0)
+	}
+	for _, sql := range []string{"PRAGMA wal_autocheckpoint=0", "CREATE TABLE note (x INTEGER)", "INSERT INTO note VALUES (1)"} {
+		rs, err := ds.ExecuteSQL(sql)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rs != nil {
+			rs.Close()
+		}
+	}
+	os.Exit(0) // without closing: the change stays in the -wal file
+}
+
+// gpkgRegion writes the small study's region as a GeoPackage beside it
+// and makes it the study's region.
+func gpkgRegion(t *testing.T, s *smallStudy) {
+	t.Helper()
+	src, err := godal.Open(s.region, godal.VectorOnly())
+	if err != nil {
+		t.Fatal(err)
+	}
+	gpkg := filepath.Join(s.dir, "region.gpkg")
+	dst, err := src.VectorTranslate(gpkg, []string{"-f", "GPKG"})
+	src.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dst.Close()
+	s.region = gpkg
+}
+
+// TestWALGeoPackageInReadOnlyFolder: a GeoPackage in WAL mode (as QGIS
+// leaves one it edited) in a folder the user cannot write to (a shared
+// data folder) was refused as "not a vector file GDAL can read (attempt
+// to write a readonly database: this file is a WAL-enabled database. It
+// cannot be opened because it is presumably read-only or in a read-only
+// directory. Retrying with IMMUTABLE=YES open option)", though GDAL reads
+// it so. It is now read, with GDAL's warning in run.log, and gives the
+// scores of the same region in a folder the user can write to. Run as
+// nobody (root writes in any folder), so only when the tests run as root.
+func TestWALGeoPackageInReadOnlyFolder(t *testing.T) {
+	if os.Geteuid() != 0 {
+		t.Skip("needs root, to run areasweep as another user")
+	}
+	s := newSmallStudy(t)
+	gpkgRegion(t, s)
+	helper := exec.Command(os.Args[0], "-test.run=^TestHelperPendingWAL$")
+	helper.Env = append(os.Environ(), walEnv+"="+s.region, walEnv+"_CLOSE=1")
+	if b, err := helper.CombinedOutput(); err != nil {
+		t.Fatalf("helper: %v\n%s", err, b)
+	}
+	ref := filepath.Join(s.dir, "ref")
+	if _, se, code := runBin(t, s.args(ref)...); code != 0 {
+		t.Fatalf("run as root: exit %d: %s", code, se)
+	}
+	// nobody reaches the binary and the inputs (root's folders, not
+	// writable by nobody), and writes into a folder of its own.
+	for _, d := range []string{filepath.Dir(areasweepBin), s.dir, filepath.Dir(s.dir)} {
+		if err := os.Chmod(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	outs := filepath.Join(s.dir, "nobody")
+	if err := os.Mkdir(outs, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Chown(outs, 65534, 65534); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(outs, "out")
+	cmd := exec.Command(areasweepBin, s.args(out)...)
+	cmd.SysProcAttr = &syscall.SysProcAttr{Credential: &syscall.Credential{Uid: 65534, Gid: 65534}}
+	var se bytes.Buffer
+	cmd.Stderr = &se
+	if code := exitCode(cmd.Run()); code != 0 {
+		t.Fatalf("run as nobody: exit %d, want 0; stderr:\n%s", code, se.String())
+	}
+	a, _ := os.ReadFile(filepath.Join(ref, "scores.csv"))
+	b, _ := os.ReadFile(filepath.Join(out, "scores.csv"))
+	if len(a) == 0 || !bytes.Equal(a, b) {
+		t.Error("scores.csv differs from the run that could write beside the region")
+	}
+	if log, _ := os.ReadFile(filepath.Join(out, "run.log")); !strings.Contains(string(log), "library warning:") {
+		t.Error("run.log does not keep GDAL's warning")
+	}
+}
+
+// TestInputWithPendingWAL: a region GeoPackage whose latest changes were
+// still in its -wal file (QGIS had it open, or was stopped) was read as
+// it was: GDAL, though reading only, wrote the changes into the input and
+// removed its -wal and -shm files, so the input's bytes changed after the
+// run had taken their SHA-256, and files the run did not create were
+// deleted. The run now refuses it (exit 2) naming the -wal file, and the
+// three files are left as they were.
+func TestInputWithPendingWAL(t *testing.T) {
+	s := newSmallStudy(t)
+	gpkgRegion(t, s)
+	cmd := exec.Command(os.Args[0], "-test.run=^TestHelperPendingWAL$")
+	cmd.Env = append(os.Environ(), walEnv+"="+s.region)
+	if b, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("helper: %v\n%s", err, b)
+	}
+	before := map[string][]byte{}
+	for _, suffix := range []string{"", "-wal", "-shm"} {
+		b, err := os.ReadFile(s.region + suffix)
+		if err != nil {
+			t.Fatalf("the helper left no %s: %v", s.region+suffix, err)
+		}
+		before[suffix] = b
+	}
+	if len(before["-wal"]) == 0 {
+		t.Fatal("the helper left an empty -wal file")
+	}
+	out := filepath.Join(s.dir, "out")
+	_, se, code := runBin(t, s.args(out)...)
+	if code != 2 {
+		t.Fatalf("exit %d, want 2; stderr:\n%s", code, se)
+	}
+	for _, want := range []string{"region: " + s.region, filepath.Base(s.region) + "-wal", "close the program"} {
+		if !strings.Contains(se, want) {
+			t.Errorf("stderr does not say %q:\n%s", want, se)
+		}
+	}
+	for suffix, b := range before {
+		if got, err := os.ReadFile(s.region + suffix); err != nil || !bytes.Equal(got, b) {
+			t.Errorf("%s changed or was removed (%v)", s.region+suffix, err)
+		}
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("%s was created", out)
 	}
 }
