@@ -18,6 +18,7 @@ import (
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/extent"
+	"areasweep/report"
 )
 
 // BatchOptions runs every study of a study table: the command's streams,
@@ -185,6 +186,14 @@ func batchRun(ctx context.Context, o *BatchOptions) error {
 		// anything runs, rather than each study failing in their words.
 		if err := extent.CheckSetup(); err != nil {
 			return fault.BadInput(err)
+		}
+	}
+	if !o.Slurm.Enabled {
+		// The studies' figures and the summary's need the temporary
+		// folder: each study failed on it, and a summary of failures was
+		// written (exit 1 all the same, as for run).
+		if err := report.CheckTempDir(); err != nil {
+			return fmt.Errorf("%w; no study ran", err)
 		}
 	}
 	return batchrun.Run(ctx, &o.Options, batchrun.IO{Out: o.IO.Out, ErrOut: o.IO.ErrOut, StopNote: swapStoppedNote})

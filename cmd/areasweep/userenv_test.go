@@ -272,6 +272,20 @@ func TestRunTMPDIRUnusableFailsEarly(t *testing.T) {
 	if _, err := os.Stat(out); !os.IsNotExist(err) {
 		t.Errorf("%s was created", out)
 	}
+	// A batch checked it study by study, and wrote a summary of failures.
+	table := filepath.Join(s.dir, "studies.csv")
+	os.WriteFile(table, []byte("id,model,occurrences,region\nsp1,m="+s.model+","+s.occ+","+s.region+"\n"), 0o644)
+	bout := filepath.Join(s.dir, "batch")
+	batch := exec.Command(areasweepBin, "batch", table, "--quiet", "--out", bout)
+	batch.Env = cmd.Env
+	se.Reset()
+	batch.Stderr = &se
+	if code := exitCode(batch.Run()); code != 1 || !strings.Contains(se.String(), "(TMPDIR)") {
+		t.Errorf("batch: exit %d, want 1 with the message about TMPDIR; stderr:\n%s", code, se.String())
+	}
+	if _, err := os.Stat(bout); !os.IsNotExist(err) {
+		t.Errorf("%s was created", bout)
+	}
 	ext := exec.Command(areasweepBin, append([]string{"extents"}, s.args(filepath.Join(s.dir, "ext"))[1:]...)...)
 	ext.Env = cmd.Env
 	if b, err := ext.CombinedOutput(); err != nil {
