@@ -449,3 +449,56 @@ func TestInputWithPendingWAL(t *testing.T) {
 		t.Errorf("%s was created", out)
 	}
 }
+
+// TestRelativePathsFromLinkedFolder: in a folder entered through a
+// symbolic link (the shell's $PWD is the link's path), "../x" is resolved
+// as the system resolves it, from the folder the link points to, as
+// mkdir, cat and GDAL do. areasweep resolved it beside the link: --out
+// ../res went into another folder than `mkdir ../res` makes, and a batch
+// table named ../t.csv was read (by the system) but its rows' relative
+// paths were resolved beside the link, each refused as missing (exit 1).
+func TestRelativePathsFromLinkedFolder(t *testing.T) {
+	s := newSmallStudy(t)
+	base := t.TempDir()
+	real := filepath.Join(base, "real", "sub")
+	if err := os.MkdirAll(real, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	link := filepath.Join(base, "link")
+	if err := os.Symlink(real, link); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []string{s.model, s.occ, s.region} {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(filepath.Join(base, "real", filepath.Base(f)), b, 0o644)
+	}
+	table := "id,model,occurrences,region\nsp1,m=" + filepath.Base(s.model) + "," + filepath.Base(s.occ) + "," + filepath.Base(s.region) + "\n"
+	os.WriteFile(filepath.Join(base, "real", "t.csv"), []byte("# iterations: 20\n"+table), 0o644)
+	run := func(args ...string) (string, int) {
+		cmd := exec.Command(areasweepBin, args...)
+		cmd.Dir = link // the child's $PWD is the link's path, as a shell's
+		var se bytes.Buffer
+		cmd.Stderr = &se
+		return se.String(), exitCode(cmd.Run())
+	}
+	in := func(name string) string { return filepath.Join("..", name) }
+	if se, code := run("run", "--model", "m="+in(filepath.Base(s.model)), "--occurrences", in(filepath.Base(s.occ)), "--region", in(filepath.Base(s.region)),
+		"--iterations", "20", "--quiet", "--out", "../res"); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(filepath.Join(base, "real", "res", "results.json")); err != nil {
+		t.Errorf("--out ../res is not beside the folder the link points to: %v", err)
+	}
+	if _, err := os.Stat(filepath.Join(base, "res")); err == nil {
+		t.Error("--out ../res was written beside the link")
+	}
+	if se, code := run("batch", "../t.csv", "--quiet", "--out", "../batch"); code != 0 {
+		t.Fatalf("batch ../t.csv: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(filepath.Join(base, "real", "batch", "sp1", "results.json")); err != nil {
+		t.Errorf("the batch's study has no results beside the folder the link points to: %v", err)
+	}
+}
