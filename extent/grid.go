@@ -131,9 +131,10 @@ func CheckSetup() error {
 	return CheckPROJ()
 }
 
-// neededDrivers are GDAL's drivers areasweep itself uses: GTiff for the
-// demo's models and extents.tif (and most models), GPKG for every
-// GeoPackage it writes, Memory (vector) for layers with curves.
+// neededDrivers are GDAL's drivers areasweep itself writes with: GTiff
+// for the demo's models and extents.tif (and most models), GPKG for every
+// GeoPackage. (The vector Memory driver, used for layers with curves
+// only, is not required: later GDALs name it otherwise.)
 var neededDrivers = []struct {
 	name   godal.DriverName
 	vector bool
@@ -141,7 +142,6 @@ var neededDrivers = []struct {
 }{
 	{godal.GTiff, false, "GeoTIFF rasters"},
 	{godal.GeoPackage, true, "GeoPackages"},
-	{godal.Memory, true, "layers in memory"},
 }
 
 // CheckDrivers reports a driver of neededDrivers that is not registered:
