@@ -57,3 +57,36 @@ func TestBlockCacheBytes(t *testing.T) {
 		}
 	}
 }
+
+// TestCacheMaxNegative: the GDAL_CACHEMAX values Configure replaces are
+// those GDAL refuses ("Invalid value for GDAL_CACHEMAX", an error raised
+// at the first block read, which failed the run). Expected values measured
+// with GDAL 3.6.2's Python binding (gdal.GetCacheMax() under each value):
+// refused ones fall back to 5% of the memory; "-0", "--3", "-" and "- 5"
+// read as 0, and "-5%" takes the percent path, which does not refuse.
+func TestCacheMaxNegative(t *testing.T) {
+	for _, tc := range []struct {
+		v    string
+		want bool
+	}{
+		{"-5", true},
+		{"-5MB", true},
+		{" -3", true},
+		{"-0", false},
+		{"--3", false},
+		{"-", false},
+		{"- 5", false},
+		{"-5%", false},
+		{"64", false},
+		{"abc", false},
+	} {
+		if got := cacheMaxNegative(tc.v); got != tc.want {
+			t.Errorf("cacheMaxNegative(%q) = %v, want %v", tc.v, got, tc.want)
+		}
+	}
+	t.Setenv("GDAL_CACHEMAX", "-5")
+	Configure()
+	if got := os.Getenv("GDAL_CACHEMAX"); got != "16" {
+		t.Errorf("GDAL_CACHEMAX = %q after Configure with -5, want 16", got)
+	}
+}

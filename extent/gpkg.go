@@ -9,6 +9,7 @@ import (
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent/gdalmsg"
+	"areasweep/report/outfile"
 )
 
 // LayerField is an attribute column of a GeoPackage layer.
@@ -82,6 +83,11 @@ func WriteLayer(path, name string, srs *godal.SpatialRef, gtype godal.GeometryTy
 	}
 	if err := ds.Close(); err != nil {
 		return fmt.Errorf("extent: close %s: %w", path, err)
+	}
+	// SQLite creates its files 0644 less the umask; areasweep's other
+	// files are 0666 less the umask (0664 under umask 002, not 0644).
+	if err := os.Chmod(path, 0o666&^outfile.Umask); err != nil {
+		return fmt.Errorf("extent: %s: %w", path, err)
 	}
 	return nil
 }

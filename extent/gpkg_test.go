@@ -9,6 +9,8 @@ import (
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/encoding/wkb"
+
+	"areasweep/report/outfile"
 )
 
 // TestWriteLayerOneTransaction: WriteLayer writes all its features in one
@@ -76,5 +78,41 @@ func TestWriteLayerOneTransaction(t *testing.T) {
 	}
 	if sum != n*(n+1)/2 {
 		t.Errorf("field values sum to %d, want %d", sum, n*(n+1)/2)
+	}
+}
+
+// TestWriteLayerMode: a GeoPackage is created 0666 less the umask, as
+// every other file areasweep writes (README, "Files in --out"). SQLite
+// creates its files 0644 less the umask, so under umask 002 extents.gpkg
+// and omitted_points.gpkg were 0644 beside results.json's 0664, and under
+// umask 000 0644 beside 0666 (seen with stat after runs under each umask).
+func TestWriteLayerMode(t *testing.T) {
+	Register()
+	srs, err := godal.NewSpatialRefFromEPSG(4326)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer srs.Close()
+	b, err := wkb.Marshal(orb.Point{10, 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	saved := outfile.Umask
+	defer func() { outfile.Umask = saved }()
+	// The process's umask stays 022 (SQLite's 0644 is then 0644): the
+	// mode must follow the umask areasweep read at start.
+	for _, umask := range []os.FileMode{0o002, 0o022, 0o077} {
+		outfile.Umask = umask
+		path := filepath.Join(t.TempDir(), "points.gpkg")
+		if err := WriteLayer(path, "points", srs, godal.GTPoint, []LayerField{{Name: "line", Type: godal.FTInt}}, []Feature{{WKB: b, Values: []any{1}}}); err != nil {
+			t.Fatal(err)
+		}
+		st, err := os.Stat(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, want := st.Mode().Perm(), 0o666&^umask; got != want {
+			t.Errorf("umask %04o: mode %04o, want %04o", umask, got, want)
+		}
 	}
 }

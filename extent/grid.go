@@ -47,16 +47,51 @@ var registerOnce sync.Once
 //	                       of 256 x 256 Float32 tiles 16,000 cells wide,
 //	                       which a virtual raster (VRT) whose blocks do not
 //	                       line up with its sources' tiles reads again for
-//	                       the next block row; a user's value is kept
+//	                       the next block row; a user's value is kept,
+//	                       except a negative number, which GDAL refuses
+//	                       with an error at the first block read (as
+//	                       BlockCacheBytes counts it: BlockCacheMB)
+//	CPL_DEBUG=OFF          a user's CPL_DEBUG=ON would make the GDAL
+//	                       binding print GDAL's debug lines on standard
+//	                       error
+//	OGR_SQLITE_JOURNAL, OGR_SQLITE_PRAGMA
+//	                       unset: a user's journal mode (WAL) or pragmas
+//	                       (page_size) would change the bytes of the
+//	                       GeoPackages written
+//	OSR_WKT_FORMAT, GDAL_TIFF_ENDIANNESS
+//	                       unset: a user's WKT1_ESRI would drop the EPSG
+//	                       code of the grid's CRS in results.json and
+//	                       write other CRS text in the GeoPackages, and
+//	                       BIG would write extents.tif in other bytes
 func Configure() {
 	os.Setenv("GDAL_PAM_ENABLED", "NO")
 	if os.Getenv("OGR_CURRENT_DATE") == "" {
 		os.Setenv("OGR_CURRENT_DATE", "2000-01-01T00:00:00.000Z")
 	}
-	if os.Getenv("GDAL_CACHEMAX") == "" {
+	if v := os.Getenv("GDAL_CACHEMAX"); v == "" || cacheMaxNegative(v) {
 		os.Setenv("GDAL_CACHEMAX", strconv.Itoa(BlockCacheMB))
 	}
+	os.Setenv("CPL_DEBUG", "OFF")
+	os.Unsetenv("OGR_SQLITE_JOURNAL")
+	os.Unsetenv("OGR_SQLITE_PRAGMA")
+	os.Unsetenv("OSR_WKT_FORMAT")
+	os.Unsetenv("GDAL_TIFF_ENDIANNESS")
 	Register()
+}
+
+// cacheMaxNegative reports whether GDAL reads v as a negative
+// GDAL_CACHEMAX, which it refuses: without a "%", GDAL 3.6 reads the
+// leading integer as atoll does (spaces, a sign, digits; "-5MB" is -5).
+func cacheMaxNegative(v string) bool {
+	if strings.Contains(v, "%") {
+		return false
+	}
+	s, ok := strings.CutPrefix(strings.TrimLeft(v, " \t\n\v\f\r"), "-")
+	if !ok {
+		return false
+	}
+	digits := len(s) - len(strings.TrimLeft(s, "0123456789"))
+	return strings.Trim(s[:digits], "0") != ""
 }
 
 // BlockCacheMB is the size (MB) of GDAL's block cache that Configure sets
@@ -85,6 +120,85 @@ func BlockCacheBytes(physical int64) int64 {
 		return n << 20
 	}
 	return n
+}
+
+// CheckSetup reports, in a user's words, a GDAL or PROJ that the
+// environment made unable to run areasweep: CheckDrivers, then CheckPROJ.
+func CheckSetup() error {
+	if err := CheckDrivers(); err != nil {
+		return err
+	}
+	return CheckPROJ()
+}
+
+// neededDrivers are GDAL's drivers areasweep itself writes with: GTiff
+// for the demo's models and extents.tif (and most models), GPKG for every
+// GeoPackage. (The vector Memory driver, used for layers with curves
+// only, is not required: later GDALs name it otherwise.)
+var neededDrivers = []struct {
+	name   godal.DriverName
+	vector bool
+	what   string
+}{
+	{godal.GTiff, false, "GeoTIFF rasters"},
+	{godal.GeoPackage, true, "GeoPackages"},
+}
+
+// CheckDrivers reports a driver of neededDrivers that is not registered:
+// GDAL_SKIP (or OGR_SKIP) in the environment names it. The run would
+// otherwise refuse every GeoTIFF as "not a raster GDAL can read", or read
+// a GeoPackage with GDAL's plain SQLite driver and refuse its first table
+// as "gpkg_contents has no geometry".
+func CheckDrivers() error {
+	Register()
+	for _, d := range neededDrivers {
+		var ok bool
+		if d.vector {
+			_, ok = godal.VectorDriver(d.name)
+		} else {
+			_, ok = godal.RasterDriver(d.name)
+		}
+		if ok {
+			continue
+		}
+		var set []string
+		for _, k := range []string{"GDAL_SKIP", "OGR_SKIP"} {
+			if v, ok := os.LookupEnv(k); ok {
+				set = append(set, fmt.Sprintf("%s=%q", k, v))
+			}
+		}
+		if len(set) > 0 {
+			return fmt.Errorf("GDAL's %s driver, which areasweep needs for %s, is turned off by %s in the environment: take %s out of it (or unset it) and run again", d.name, d.what, strings.Join(set, " and "), d.name)
+		}
+		return fmt.Errorf("GDAL's %s driver, which areasweep needs for %s, is missing from the installed GDAL: install a GDAL built with it (Debian's libgdal has it)", d.name, d.what)
+	}
+	return nil
+}
+
+// CheckPROJ reports, in a user's words, a PROJ that cannot make WGS84
+// (EPSG:4326) from its database, proj.db: every coordinate system a run
+// meets goes through it. It fails when PROJ_DATA or PROJ_LIB in the
+// environment names a folder without PROJ's database (PROJ's own words:
+// "proj_create_from_database: Cannot find proj.db"), or without that
+// variable when PROJ's data is not installed.
+func CheckPROJ() error {
+	Register()
+	sr, err := godal.NewSpatialRefFromEPSG(4326)
+	if err == nil {
+		sr.Close()
+		return nil
+	}
+	cause := gdalmsg.Cause(err.Error())
+	var set []string
+	for _, k := range []string{"PROJ_DATA", "PROJ_LIB"} {
+		if v, ok := os.LookupEnv(k); ok {
+			set = append(set, fmt.Sprintf("%s=%q", k, v))
+		}
+	}
+	if len(set) > 0 {
+		return fmt.Errorf("PROJ, the library that handles coordinate systems, cannot read its database (%s) with %s in the environment: unset it, or point it to the folder that holds the proj.db of the PROJ installed with GDAL", cause, strings.Join(set, " and "))
+	}
+	return fmt.Errorf("PROJ, the library that handles coordinate systems, cannot read its database (%s): install its data (the proj-data package on Debian and Ubuntu), or set PROJ_DATA to the folder that holds proj.db", cause)
 }
 
 // Register makes GDAL's drivers available. It is safe to call many times

@@ -167,7 +167,16 @@ func (s *polygonSource) close() {
 // field is resolved and checked for empty ids, and invalid features are
 // repaired (GDAL's MakeValid), each with a warning.
 func openPolygons(path, field string) (*polygonSource, []string, error) {
-	ds, err := godal.Open(path, godal.VectorOnly())
+	ds, err := godal.Open(path, godal.VectorOnly(), godal.ErrLogger(func(ec godal.ErrorCategory, code int, msg string) error {
+		switch {
+		case ec < godal.CE_Warning:
+			return nil
+		case ec == godal.CE_Warning && strings.Contains(msg, walRetry):
+			gdalmsg.Record(gdalmsg.Warning, code, msg) // for the run log
+			return nil
+		}
+		return errors.New(msg) // as godal treats a warning by default
+	}))
 	if err != nil {
 		return nil, nil, openVectorError(path, err)
 	}
@@ -179,6 +188,13 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 	}
 	return s, warns, nil
 }
+
+// walRetry ends GDAL's warning for a GeoPackage in WAL mode in a
+// read-only folder (as QGIS leaves one it edited), where SQLite cannot
+// make the -shm file it reads such a file with: GDAL then opens it
+// immutable, which reads it, but the warning made the open fail, and the
+// layer was refused as "not a vector file GDAL can read".
+const walRetry = "Retrying with IMMUTABLE=YES open option"
 
 // MaxSQLitePath is the longest path of a file SQLite opens (its Unix
 // layer's 512 bytes, less room for the "-journal" suffix); GDAL's

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"image"
 	"image/color"
@@ -220,6 +221,23 @@ func fontTempDirError(msg string) error {
 		cause = cause[i+2:] // the system's reason, without the library's temporary path
 	}
 	return fmt.Errorf("the PDF figures need the temporary folder %s (TMPDIR), which cannot be used: %s; set TMPDIR to a folder you can write to, with free space", os.TempDir(), cause)
+}
+
+// CheckTempDir reports, in fontTempDirError's words, a temporary folder
+// the PDF figures could not use (TMPDIR missing, read-only or full): a
+// run checks it before its work, which it otherwise lost at the end,
+// when the first PDF was drawn.
+func CheckTempDir() error {
+	d, err := os.MkdirTemp("", "areasweep-tmpcheck-")
+	if err != nil {
+		cause := err
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			cause = pe.Err
+		}
+		return fontTempDirError(pdfFontFailed + cause.Error())
+	}
+	return os.Remove(d)
 }
 
 // render draws f in one format: "svg", "pdf" or "png" (at pngDPI on white).

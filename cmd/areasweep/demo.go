@@ -13,6 +13,7 @@ import (
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/scenario"
 	"areasweep/cmd/internal/settings"
+	"areasweep/extent"
 )
 
 // DemoOptions runs the built-in demo.
@@ -68,6 +69,9 @@ func demoRun(o *DemoOptions) error {
 	in := filepath.Join(o.Out, "inputs")
 	if ents, err := os.ReadDir(in); err == nil && len(ents) > 0 && !scenario.IsDemoInputs(in) {
 		return fault.BadInput(fmt.Errorf("--out %s holds %s, which the demo did not write (its study.yaml is not the demo's); the demo replaces that folder as a whole, --force or not: move it, or choose another --out", o.Out, in))
+	}
+	if err := extent.CheckSetup(); err != nil {
+		return fault.BadInput(err) // the scenario's layers need it too
 	}
 	d, err := outdir.OpenDemo(o.Out, o.Force, scenario.FileNames())
 	if err != nil {

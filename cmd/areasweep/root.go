@@ -99,6 +99,16 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		case <-stop:
 		}
 	}()
+	// Relative paths are resolved as the system resolves them, from the
+	// physical current folder: Go's os.Getwd (behind filepath.Abs)
+	// prefers $PWD, the shell's path, so that in a folder entered through
+	// a symbolic link "../x" named another folder for areasweep than for
+	// GDAL, the system and every other program (--out ../res went
+	// beside the link, a batch table ../t.csv had its rows' paths resolved
+	// there and refused as missing).
+	if wd, err := syscall.Getwd(); err == nil {
+		os.Setenv("PWD", wd)
+	}
 	extent.Configure()
 	gdalmsg.Install()
 	log.SetFlags(0)

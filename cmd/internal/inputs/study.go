@@ -342,7 +342,10 @@ func pathValue(key string, v *yaml.Node, dir string) (*string, error) {
 	if strings.TrimSpace(n.Value) == "" {
 		return nil, badValue("the path is empty; give a path or remove the key")
 	}
-	p := resolvePath(dir, n.Value)
+	p, err := resolvePath(dir, n.Value)
+	if err != nil {
+		return nil, err
+	}
 	return &p, nil
 }
 
@@ -350,17 +353,22 @@ func pathValue(key string, v *yaml.Node, dir string) (*string, error) {
 // in the home folder, as a shell would read it (a study file or table is
 // not read by a shell, and a folder named ~ beside it is never meant).
 // Absolute paths, URLs and GDAL virtual paths (/vsi...) are returned
-// unchanged.
-func resolvePath(dir, p string) string {
+// unchanged. With the home folder unknown (HOME not set, as under some
+// schedulers and service managers) a path starting with ~/ is refused:
+// it was joined to dir, and the message named a file "DIR/~/..." that
+// does not exist.
+func resolvePath(dir, p string) (string, error) {
 	if p == "~" || strings.HasPrefix(p, "~/") {
-		if home, err := os.UserHomeDir(); err == nil {
-			return filepath.Join(home, p[1:])
+		home, err := os.UserHomeDir()
+		if err != nil {
+			return "", badValue("%q starts with ~, the home folder, which is not known here (HOME is not set); give the full path", p)
 		}
+		return filepath.Join(home, p[1:]), nil
 	}
 	if dir == "" || p == "" || filepath.IsAbs(p) || strings.Contains(p, "://") || strings.HasPrefix(p, "/vsi") {
-		return p
+		return p, nil
 	}
-	return filepath.Join(dir, p)
+	return filepath.Join(dir, p), nil
 }
 
 func intValue(key string, v *yaml.Node) (*int, error) {
@@ -545,7 +553,11 @@ func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
 			return "", &lineErr{n.Line, badValue("the name %q is %s; give each its own name", name, where)}
 		}
 		seen[name] = n.Line
-		return name + "=" + resolvePath(dir, p), nil
+		r, err := resolvePath(dir, p)
+		if err != nil {
+			return "", &lineErr{n.Line, err}
+		}
+		return name + "=" + r, nil
 	}
 	switch v.Kind {
 	case yaml.ScalarNode:

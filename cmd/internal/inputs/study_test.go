@@ -292,6 +292,19 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 		}
 	})
+	t.Run("tilde without a home folder", func(t *testing.T) {
+		// HOME unset: "~/data/occ.csv" was joined to the study's folder
+		// and reported as SUB/~/data/occ.csv not existing.
+		t.Setenv("HOME", "")
+		os.Unsetenv("HOME")
+		for i, body := range []string{"iterations: 5\noccurrences: ~/data/occ.csv\n", "iterations: 5\nmodel:\n  m: ~/m.tif\n"} {
+			p := filepath.Join(sub, fmt.Sprintf("nohome%d.yaml", i))
+			os.WriteFile(p, []byte(body), 0o644)
+			_, err := LoadStudy(p)
+			key := []string{"occurrences", "model"}[i]
+			checkStudyError(t, err, ErrBadValue, p, 2+i, key, []string{"HOME is not set", "give the full path"})
+		}
+	})
 	t.Run("a study table given as a study file", func(t *testing.T) {
 		for i, body := range []string{"# iterations: 5\nid,model,occurrences,region\na,m=x.tif,o.csv,r.gpkg\n", "\ufeff\"id\";\"model\"\n"} {
 			p := filepath.Join(sub, fmt.Sprintf("table%d.csv", i))

@@ -122,6 +122,19 @@ var Umask = outfile.Umask
 // MkdirPerm is the mode of folders areasweep creates.
 func MkdirPerm() os.FileMode { return 0o777 &^ Umask }
 
+// CheckUmask refuses a umask that takes any of the owner's own
+// permissions from what areasweep creates (umask 277, 222, 777): its
+// staging folder, made 0700 &^ umask, could not be written into (nor a
+// GeoPackage it wrote read back), and the message blamed the folder that
+// holds --out ("cannot write in ... (permission denied); choose a folder
+// you can write to"), which changing folder does not mend.
+func CheckUmask() error {
+	if Umask&0o700 != 0 {
+		return fault.BadInput(fmt.Errorf("the umask is %04o, which takes your own permissions from the files and folders areasweep creates, so it could not write into them or read them back; set a umask that leaves them, such as 022 or 077 (the shell's command umask 022), and run again", uint32(Umask)))
+	}
+	return nil
+}
+
 // Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
 func Open(out string, force bool, inputs []string) (*Dir, error) {
@@ -212,6 +225,9 @@ func foreignError(out string, found []string) error {
 func open(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, error) {
 	if out == "" {
 		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
+	}
+	if err := CheckUmask(); err != nil {
+		return nil, err
 	}
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)

@@ -125,6 +125,8 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	s.sums, s.streams = (*Study).Stream, true
 	s.dir = d
 	for _, step := range []func() error{
+		checkSetup,
+		s.checkTempDir,
 		s.checkFiles,
 		s.openGrid,
 		s.checkMemory,
@@ -168,6 +170,30 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		return nil, err
 	}
 	return s, nil
+}
+
+// checkSetup refuses, before any input is read, a GDAL whose drivers
+// areasweep needs are turned off (GDAL_SKIP) and a PROJ without its
+// database (a PROJ_DATA naming a folder without proj.db): the inputs
+// would otherwise be blamed, in the libraries' words.
+func checkSetup() error {
+	if err := extent.CheckSetup(); err != nil {
+		return fault.BadInput(err)
+	}
+	return nil
+}
+
+// checkTempDir fails a run that draws figures (not extents, not a
+// shard) whose temporary folder the PDF figures cannot use, before any
+// work: it failed at the end, after the scoring (exit 1 all the same).
+func (s *Study) checkTempDir() error {
+	if s.o.ExtentsOnly || s.o.Shard {
+		return nil
+	}
+	if err := report.CheckTempDir(); err != nil {
+		return fmt.Errorf("%w; nothing was written", err)
+	}
+	return nil
 }
 
 // Close removes the staging folder unless Finish moved it into place; it

@@ -286,6 +286,18 @@ func mustExist(what, path string) error {
 	if st.Mode().IsRegular() && st.Size() == 0 && what != "occurrences" { // the table reader says what an empty table needs
 		return fault.BadInput(fmt.Errorf("%s: %s is empty (0 bytes); it was probably cut off while being written, copied or downloaded: give the complete file", what, path))
 	}
+	if wal := path + "-wal"; what != "occurrences" {
+		// A GeoPackage (an SQLite file) in WAL mode keeps its latest
+		// changes in this file until they are written into it. GDAL's
+		// reading, though read-only, wrote them into the input and
+		// removed the -wal and -shm files when it closed the file: the
+		// input changed after its SHA-256 was taken, and files the run
+		// did not create were removed.
+		if ws, err := os.Stat(wal); err == nil && ws.Mode().IsRegular() && ws.Size() > 0 {
+			return fault.BadInput(fmt.Errorf("%s: %s has changes not yet written into it, kept in %s beside it (a program such as QGIS has the file open, or stopped while it had): reading it would write them into %s and remove that file; close the program, or open and close the file once in it, and run again",
+				what, path, filepath.Base(wal), filepath.Base(path)))
+		}
+	}
 	return nil
 }
 

@@ -120,6 +120,9 @@ func Run(o Options) (string, error) {
 	if abs, err := filepath.Abs(o.Dir); err == nil && strings.ContainsAny(abs, "\n\r") {
 		return "", fault.BadInput(outdir.LineBreakError("the folder", o.Dir, abs))
 	}
+	if err := outdir.CheckUmask(); err != nil {
+		return "", err
+	}
 	st2, err := stage(o.Dir)
 	if err != nil && outdir.DiskFull(err) {
 		return "", fmt.Errorf("%s: cannot write in it (%v): free some space on that disk, or re-render the report of a copy of the folder on another one; the report files in it were left as they were", o.Dir, outdir.Cause(err))

@@ -12,6 +12,7 @@ import (
 
 	"areasweep/extent"
 	"areasweep/extent/vocab"
+	"areasweep/report/outfile"
 
 	"github.com/airbusgeo/godal"
 )
@@ -124,7 +125,8 @@ func Write(dir string, seed uint64) (Files, error) {
 	if err := writeRaster(f.Models[1].Path, sc.coarse, "suitability, coarse model"); err != nil {
 		return Files{}, err
 	}
-	if err := os.WriteFile(f.Occurrences, occurrencesCSV(sc.records), 0o644); err != nil {
+	// 0666 less the umask, as every file areasweep writes.
+	if err := os.WriteFile(f.Occurrences, occurrencesCSV(sc.records), 0o666); err != nil {
 		return Files{}, fmt.Errorf("scenario: write occurrences: %w", err)
 	}
 	region := []polyFeature{{ring: sc.region, values: []fieldValue{{"name", "core range of " + Species}}}}
@@ -139,7 +141,13 @@ func Write(dir string, seed uint64) (Files, error) {
 	if err := writePolygons(f.Ecoregions, "ecoregions", defs, units); err != nil {
 		return Files{}, err
 	}
-	if err := os.WriteFile(f.Study, studyYAML(seed), 0o644); err != nil {
+	for _, p := range []string{f.Region, f.Ecoregions} {
+		// SQLite made them 0644 less the umask.
+		if err := os.Chmod(p, 0o666&^outfile.Umask); err != nil {
+			return Files{}, fmt.Errorf("scenario: %w", err)
+		}
+	}
+	if err := os.WriteFile(f.Study, studyYAML(seed), 0o666); err != nil {
 		return Files{}, fmt.Errorf("scenario: write study file: %w", err)
 	}
 	return f, nil

@@ -29,7 +29,19 @@ import (
 // before anyone reads it waits there.
 var caught = make(chan os.Signal, 1)
 
-func init() { Listen() }
+// brokenPipe receives SIGPIPE, and nobody reads it: catching the signal
+// makes a write to a pipe whose reader is gone (standard error piped into
+// `head`) fail with EPIPE instead of ending the process. A run would
+// otherwise die at its next progress line, its outputs unwritten and its
+// staging folder left beside --out; it now finishes, the lines kept in
+// run.log. Caught rather than ignored, so that a program areasweep starts
+// (sbatch) gets the default disposition back.
+var brokenPipe = make(chan os.Signal, 1)
+
+func init() {
+	Listen()
+	signal.Notify(brokenPipe, syscall.SIGPIPE)
+}
 
 // Listen catches SIGINT, SIGTERM and SIGHUP and returns the channel they
 // arrive on. The package's init calls it; calling it again (a command run
