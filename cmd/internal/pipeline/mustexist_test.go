@@ -51,3 +51,41 @@ func TestMustExistEmptyAndCommas(t *testing.T) {
 		t.Errorf("two items in one flag: %v", err)
 	}
 }
+
+// TestMustExistLayerInPath: a layer named in the path, as QGIS shows a
+// layer's source (FILE|layername=NAME, FILE|layerid=N) or as FILE:LAYER,
+// is refused saying that areasweep takes a file and how to save the
+// layer alone, instead of "does not exist or cannot be read; check the
+// path" for a file that exists.
+func TestMustExistLayerInPath(t *testing.T) {
+	dir := t.TempDir()
+	gpkg := filepath.Join(dir, "study.gpkg")
+	if err := os.WriteFile(gpkg, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ path, want string }{
+		{gpkg + "|layername=m_large", "ogr2ogr OUT.gpkg " + gpkg + " m_large;"},
+		{gpkg + "|layerid=2", "ogr2ogr OUT.gpkg " + gpkg + " LAYER;"},
+		{gpkg + "|layername=m large|subset=x", "ogr2ogr OUT.gpkg " + gpkg + " 'm large';"},
+		{gpkg + ":m_large", "ogr2ogr OUT.gpkg " + gpkg + " m_large;"},
+	}
+	for _, c := range cases {
+		err := mustExist("region", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "names a layer inside the path") || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+	if err := mustExist("region", filepath.Join(dir, "other.gpkg|layername=m")); err == nil || !strings.Contains(err.Error(), "does not exist or cannot be read") {
+		t.Errorf("a layer of a missing file: %v", err)
+	}
+}
+
+// TestMustExistLayerInPathRaster: a model's path is not read as naming
+// a layer.
+func TestMustExistLayerInPathRaster(t *testing.T) {
+	tif := filepath.Join(t.TempDir(), "m.tif")
+	os.WriteFile(tif, []byte("x"), 0o644)
+	if err := mustExist("model m", tif+":2"); err == nil || strings.Contains(err.Error(), "layer") {
+		t.Errorf("model: %v", err)
+	}
+}

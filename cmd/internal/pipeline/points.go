@@ -250,6 +250,30 @@ var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
 // Windows drive letter is not one).
 var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
 
+// layerInPath splits a path that names a layer of an existing file the
+// way QGIS writes a layer's source (regions.gpkg|layername=m or
+// |layerid=1) or as FILE:LAYER, and returns the file and the layer
+// (LAYER for a layer id, which names no layer ogr2ogr takes).
+func layerInPath(path string) (file, layer string, ok bool) {
+	exists := func(f string) bool {
+		st, err := os.Stat(f)
+		return err == nil && (st.Mode().IsRegular() || (st.IsDir() && strings.HasSuffix(strings.ToLower(f), ".gdb")))
+	}
+	if i := strings.Index(path, "|"); i > 0 && exists(path[:i]) {
+		layer = "LAYER"
+		for _, opt := range strings.Split(path[i+1:], "|") {
+			if name, found := strings.CutPrefix(opt, "layername="); found && name != "" {
+				layer = shellArg(name)
+			}
+		}
+		return path[:i], layer, true
+	}
+	if i := strings.LastIndex(path, ":"); i > 0 && i < len(path)-1 && exists(path[:i]) {
+		return path[:i], shellArg(path[i+1:]), true
+	}
+	return "", "", false
+}
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -264,6 +288,10 @@ func mustExist(what, path string) error {
 		if gdalSubdataset.MatchString(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
+		}
+		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
+			return fault.BadInput(fmt.Errorf("%s: %s names a layer inside the path (as a GIS shows a layer's source); areasweep takes a file and uses its first layer of polygons: "+
+				"save that layer alone and give its file (e.g. ogr2ogr OUT.gpkg %s %s; ogrinfo %s lists the layers)", what, path, shellArg(file), layer, shellArg(file)))
 		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
