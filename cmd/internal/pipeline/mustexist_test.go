@@ -89,3 +89,31 @@ func TestMustExistLayerInPathRaster(t *testing.T) {
 		t.Errorf("model: %v", err)
 	}
 }
+
+// TestMustExistBackslashes: a path written with Windows's backslashes (a
+// study file made on Windows, whose relative paths are joined to its
+// folder) is refused saying that / separates folders here, naming the
+// file that the path with / would be when it exists, and a path with a
+// drive letter as a Windows path.
+func TestMustExistBackslashes(t *testing.T) {
+	dir := t.TempDir()
+	os.MkdirAll(filepath.Join(dir, "inputs", "rasters"), 0o755)
+	tif := filepath.Join(dir, "inputs", "rasters", "model.tif")
+	os.WriteFile(tif, []byte("x"), 0o644)
+	cases := []struct{ path, want string }{
+		{filepath.Join(dir, `inputs\rasters\model.tif`), "write the path with / between folders (" + tif + " exists)"},
+		{filepath.Join(dir, `.\inputs\rasters\model.tif`), "write the path with / between folders (" + tif + " exists)"},
+		{filepath.Join(dir, `inputs\model.tif`), "a backslash (\\) separates folders on Windows only; write the path with / between folders"},
+		{filepath.Join(dir, `C:\Users\ana\sdm\occ.csv`), "it is a Windows path"},
+		{`D:\sdm\occ.csv`, "it is a Windows path"},
+	}
+	for _, c := range cases {
+		err := mustExist("occurrences", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+	if err := mustExist("occurrences", filepath.Join(dir, `inputs\model.tif`)); strings.Contains(err.Error(), "exists)") {
+		t.Errorf("names a file that does not exist: %v", err)
+	}
+}

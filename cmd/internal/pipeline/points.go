@@ -250,6 +250,25 @@ var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
 // Windows drive letter is not one).
 var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
 
+// windowsDrive matches a Windows drive letter starting a path or a
+// path's part (a study file's C:\data\x.tif is joined to its folder).
+var windowsDrive = regexp.MustCompile(`(^|/)[A-Za-z]:/`)
+
+// backslashAdvice says what to do with a path that holds backslashes
+// (written on Windows, as in a study file made there) and does not
+// exist: on this system a backslash is part of a file's name.
+func backslashAdvice(path string) string {
+	slashed := strings.ReplaceAll(path, `\`, "/")
+	if windowsDrive.MatchString(slashed) {
+		return "it is a Windows path (a drive letter and backslashes); give the path of the file on this machine, with / between folders"
+	}
+	advice := "a backslash (\\) separates folders on Windows only; write the path with / between folders"
+	if st, err := os.Stat(slashed); err == nil && !st.IsDir() {
+		advice += fmt.Sprintf(" (%s exists)", filepath.Clean(slashed))
+	}
+	return advice
+}
+
 // layerInPath splits a path that names a layer of an existing file the
 // way QGIS writes a layer's source (regions.gpkg|layername=m or
 // |layerid=1) or as FILE:LAYER, and returns the file and the layer
@@ -288,6 +307,9 @@ func mustExist(what, path string) error {
 		if gdalSubdataset.MatchString(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
+		}
+		if strings.Contains(path, `\`) {
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, backslashAdvice(path)))
 		}
 		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
 			return fault.BadInput(fmt.Errorf("%s: %s names a layer inside the path (as a GIS shows a layer's source); areasweep takes a file and uses its first layer of polygons: "+
