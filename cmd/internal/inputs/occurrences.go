@@ -413,6 +413,11 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 				return nil, err
 			}
 			v, err := parseNumber(s, delim != ',')
+			if err != nil && s == "" {
+				// A portal's export holds records without coordinates,
+				// often many: name them all at once, not one per run.
+				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; %s", ErrBadNumber, err, emptyCoordinates(line, row, cols, readRow)))
+			}
 			if err != nil {
 				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; write the %s as a decimal number "+
 					"such as -12.5 (dot as decimal separator), or delete the line%s", ErrBadNumber, err, c.what, commaHint(delim, len(row), len(hdr))))
@@ -459,6 +464,47 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// emptyCoordinates says what to do about a record whose longitude or
+// latitude is empty (row, at line), as a biodiversity portal's export
+// holds for records without coordinates: it reads the rest of the table
+// for more such lines and names how many there are and the first ten.
+func emptyCoordinates(line int, row []string, cols columns, readRow func() ([]string, int, error)) string {
+	empty := func(r []string) bool {
+		for _, c := range []column{cols.lon, cols.lat} {
+			if c.index >= len(r) || strings.TrimSpace(r[c.index]) == "" {
+				return true
+			}
+		}
+		return false
+	}
+	lines := []int{line}
+	n := 1
+	for {
+		r, l, err := readRow()
+		if err != nil {
+			break // the end, or a line the next run names
+		}
+		if empty(r) {
+			if n++; len(lines) < 10 {
+				lines = append(lines, l)
+			}
+		}
+	}
+	if n == 1 {
+		return "a record without coordinates cannot be placed: write its longitude and latitude as decimal numbers such as -12.5, or delete the line"
+	}
+	list := make([]string, len(lines))
+	for i, l := range lines {
+		list[i] = strconv.Itoa(l)
+	}
+	more := ""
+	if n > len(lines) {
+		more = fmt.Sprintf(" and %d more", n-len(lines))
+	}
+	return fmt.Sprintf("%d lines have an empty longitude or latitude (lines %s%s), as an export holds records without coordinates; "+
+		"such a record cannot be placed: delete those lines, or fill in their coordinates", n, strings.Join(list, ", "), more)
 }
 
 // utf16WithoutBOM returns "little-endian" or "big-endian" when head reads
