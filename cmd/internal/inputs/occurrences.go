@@ -26,7 +26,16 @@ type Record struct {
 	// Role is vocab.RoleTrain (a record used to calibrate the model) or
 	// vocab.RoleTest (a record held out to evaluate it).
 	Role vocab.Role
+	// Taxon is the record's name in the table's species column (the
+	// first of TaxonNames in the header; "" without one), which only a
+	// warning reads: every record is scored as one species.
+	Taxon string
 }
+
+// TaxonNames are the headers of a species column, in order of
+// preference (case ignored): a portal's export has several, and
+// "species" is the name without author or subspecies.
+var TaxonNames = []string{"species", "scientificname", "scientific_name", "species_name", "taxon"}
 
 // Sentinel errors of the occurrence reader. They are wrapped inside a
 // *ParseError; test for them with errors.Is.
@@ -377,6 +386,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	}
 
 	var recs []Record
+	taxa := map[string]string{}
 	for {
 		row, line, err := readRow()
 		if err == io.EOF {
@@ -433,6 +443,15 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			return nil, perr(line, cols.role.name, fmt.Errorf("%w: found %s; %s%s", ErrBadRole, shown(s), roleAdvice, commaHint(delim, len(row), len(hdr))))
 		}
 		rec.Role = role
+		if i := cols.taxon.index; i >= 0 && i < len(row) {
+			if rec.Taxon = strings.TrimSpace(row[i]); rec.Taxon != "" {
+				if t, ok := taxa[rec.Taxon]; ok {
+					rec.Taxon = t // one copy of each name
+				} else {
+					taxa[rec.Taxon] = rec.Taxon
+				}
+			}
+		}
 		recs = append(recs, rec)
 	}
 
@@ -636,7 +655,7 @@ type column struct {
 	name  string // header spelling as written (trimmed)
 }
 
-type columns struct{ lon, lat, role column }
+type columns struct{ lon, lat, role, taxon column }
 
 // detectDelimiter returns ',' when the header line contains a comma, else
 // ';' or '\t', whichever the line holds more of (';' on a tie). A header
@@ -670,7 +689,7 @@ func delimiterName(d rune) string {
 
 // findColumns locates the longitude, latitude and role columns.
 func findColumns(hdr []string, delim rune) (columns, error) {
-	var c columns
+	c := columns{taxon: column{index: -1}}
 	found := [3]bool{}
 	targets := []struct {
 		names []string
@@ -690,6 +709,13 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 			}
 			found[t] = true
 			*tg.dst = column{index: i, name: name}
+		}
+	}
+	for _, want := range TaxonNames {
+		for i, h := range hdr {
+			if c.taxon.index < 0 && strings.ToLower(strings.TrimSpace(h)) == want {
+				c.taxon = column{index: i, name: strings.TrimSpace(h)}
+			}
 		}
 	}
 	// At most 12 fields are quoted (a GBIF download has some 250), each

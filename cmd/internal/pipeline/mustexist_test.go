@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 )
 
 // TestMustExistUnreadable: an input file the user cannot read is refused
@@ -115,5 +116,35 @@ func TestMustExistBackslashes(t *testing.T) {
 	}
 	if err := mustExist("occurrences", filepath.Join(dir, `inputs\model.tif`)); strings.Contains(err.Error(), "exists)") {
 		t.Errorf("names a file that does not exist: %v", err)
+	}
+}
+
+// TestTaxaWarning: an occurrence table whose species column names more
+// than one taxon (a portal's export of a genus) is warned about, the
+// taxa listed by their number of lines (counted by hand from recs), as
+// every line is scored as one species; one taxon, or no species column,
+// gives no warning.
+func TestTaxaWarning(t *testing.T) {
+	recs := func(names ...string) []inputs.Record {
+		var r []inputs.Record
+		for i, n := range names {
+			r = append(r, inputs.Record{Line: i + 2, Taxon: n})
+		}
+		return r
+	}
+	cases := []struct {
+		names []string
+		want  string
+	}{
+		{[]string{"Vornia palustris", "Vornia alia", "Vornia palustris", ""}, "names 2 taxa (Vornia palustris on 2 lines, Vornia alia on 1 line); areasweep scores every line of the table as one species"},
+		{[]string{"a", "b", "c", "d", "e", "f", "g", "g"}, "names 7 taxa (g on 2 lines, a on 1 line, b on 1 line, c on 1 line, d on 1 line, and 2 more)"},
+		{[]string{"Vornia palustris", "Vornia palustris", ""}, ""},
+		{[]string{"", ""}, ""},
+	}
+	for _, c := range cases {
+		got := taxaWarning("occ.tsv", recs(c.names...))
+		if (c.want == "") != (got == "") || !strings.Contains(got, c.want) {
+			t.Errorf("%v: got %q, want %q", c.names, got, c.want)
+		}
 	}
 }

@@ -403,6 +403,9 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	if err != nil {
 		return nil, nil, nil, fault.BadInput(err)
 	}
+	if w := taxaWarning(o.Occurrences, recs); w != "" {
+		s.warn(w)
+	}
 	s.rawDegrees = !geographic
 	lons, lats = make([]float64, len(recs)), make([]float64, len(recs))
 	for i, r := range recs {
@@ -418,6 +421,46 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 		}
 	}
 	return lons, lats, recs, nil
+}
+
+// taxaWarning says, when the table's species column (inputs.TaxonNames)
+// names more than one taxon, that every line is scored as one species:
+// a portal's export of a genus, or of several species, scored as is
+// mixes their records. "" otherwise.
+func taxaWarning(path string, recs []inputs.Record) string {
+	count := map[string]int{}
+	for _, r := range recs {
+		if r.Taxon != "" {
+			count[r.Taxon]++
+		}
+	}
+	if len(count) < 2 {
+		return ""
+	}
+	names := make([]string, 0, len(count))
+	for n := range count {
+		names = append(names, n)
+	}
+	slices.SortFunc(names, func(a, b string) int {
+		if count[a] != count[b] {
+			return count[b] - count[a]
+		}
+		return strings.Compare(a, b)
+	})
+	var list []string
+	for i, n := range names {
+		if i == 5 {
+			list = append(list, fmt.Sprintf("and %d more", len(names)-5))
+			break
+		}
+		lines := "lines"
+		if count[n] == 1 {
+			lines = "line"
+		}
+		list = append(list, fmt.Sprintf("%s on %d %s", shortText(n, 60), count[n], lines))
+	}
+	return fmt.Sprintf("occurrences: the species column of %s names %d taxa (%s); areasweep scores every line of the table as one species (it has no species filter): "+
+		"if the models are of one of them, keep only its lines", path, len(names), strings.Join(list, ", "))
 }
 
 // readOccurrences reads the occurrence table. One given as a pipe (a
