@@ -148,3 +148,23 @@ func TestTaxaWarning(t *testing.T) {
 		}
 	}
 }
+
+// TestZeroWarning: records at exactly 0, 0 in degrees (the placeholder
+// of a missing coordinate) are named, ten lines at most; a projected
+// table's 0, 0 is a place like any other.
+func TestZeroWarning(t *testing.T) {
+	var recs []inputs.Record
+	for i := 0; i < 12; i++ {
+		recs = append(recs, inputs.Record{Line: 2 + 2*i, X: 0, Y: 0}, inputs.Record{Line: 3 + 2*i, X: 0, Y: 0.5})
+	}
+	got := zeroWarning("occ.csv", recs, true)
+	if want := "12 record(s) of occ.csv lie at longitude 0, latitude 0 exactly (lines 2, 4, 6, 8, 10, 12, 14, 16, 18, 20 and 2 more)"; !strings.Contains(got, want) {
+		t.Errorf("got %q, want %q", got, want)
+	}
+	if got := zeroWarning("occ.csv", recs, false); got != "" {
+		t.Errorf("projected: %q", got)
+	}
+	if got := zeroWarning("occ.csv", recs[1:2], true); got != "" {
+		t.Errorf("no record at 0, 0: %q", got)
+	}
+}

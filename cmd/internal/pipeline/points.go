@@ -406,6 +406,9 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	if w := taxaWarning(o.Occurrences, recs); w != "" {
 		s.warn(w)
 	}
+	if w := zeroWarning(o.Occurrences, recs, geographic); w != "" {
+		s.warn(w)
+	}
 	s.rawDegrees = !geographic
 	lons, lats = make([]float64, len(recs)), make([]float64, len(recs))
 	for i, r := range recs {
@@ -461,6 +464,36 @@ func taxaWarning(path string, recs []inputs.Record) string {
 	}
 	return fmt.Sprintf("occurrences: the species column of %s names %d taxa (%s); areasweep scores every line of the table as one species (it has no species filter): "+
 		"if the models are of one of them, keep only its lines", path, len(names), strings.Join(list, ", "))
+}
+
+// zeroWarning names the records at longitude 0 and latitude 0 exactly
+// (in degrees), the placeholder that exports and databases hold for a
+// missing coordinate (a portal flags them as zero coordinates): they are
+// scored wherever a model has data there. "" when there are none.
+func zeroWarning(path string, recs []inputs.Record, geographic bool) string {
+	if !geographic {
+		return ""
+	}
+	var lines []string
+	n := 0
+	for _, r := range recs {
+		if r.X == 0 && r.Y == 0 {
+			if n++; n <= 10 {
+				lines = append(lines, strconv.Itoa(r.Line))
+			}
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	more, word := "", "lines"
+	if n > 10 {
+		more = fmt.Sprintf(" and %d more", n-10)
+	} else if n == 1 {
+		word = "line"
+	}
+	return fmt.Sprintf("occurrences: %d record(s) of %s lie at longitude 0, latitude 0 exactly (%s %s%s), where exports put records whose coordinates are missing; "+
+		"they are used like any other (scored where the models have data there): delete them unless the species was recorded there", n, path, word, strings.Join(lines, ", "), more)
 }
 
 // readOccurrences reads the occurrence table. One given as a pipe (a
