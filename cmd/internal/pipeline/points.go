@@ -153,8 +153,9 @@ func (s *Study) openGrid() error {
 			continue
 		}
 		if d := s.grid.SameAs(g); d != "" {
-			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid (e.g. gdalwarp -tr/-te)",
-				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d))
+			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid, e.g. %s onto the grid of %s: %s",
+				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d, m.Name, s.models[0].Name,
+				onGridCommand(s.grid, s.models[0].Path, m.Path, strings.Contains(d, "CRS "))))
 		}
 		g.Close()
 	}
@@ -165,6 +166,27 @@ func (s *Study) openGrid() error {
 		s.logf("cell area ratios of the blocks computed in %.2f s (once for every model of the run, and every study of a batch, on this grid)", g.FactorTime.Seconds())
 	}
 	return nil
+}
+
+// onGridCommand is the gdalwarp command that resamples the raster at
+// path onto grid g (the first model's, read from first): its extent
+// (-te) and cell size (-tr), bilinear, and its CRS when crs is set (as
+// EPSG:N when it has that code, else named by the first model).
+func onGridCommand(g *extent.Grid, first, path string, crs bool) string {
+	gt := g.GeoTransform
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	t := ""
+	if crs {
+		if strings.HasPrefix(g.CRS, "EPSG:") {
+			t = " -t_srs " + g.CRS
+		} else {
+			t = " -t_srs CRS (the CRS of " + first + ")"
+		}
+	}
+	out := strings.TrimSuffix(path, filepath.Ext(path)) + "_on_grid.tif"
+	return fmt.Sprintf("gdalwarp%s -te %s %s %s %s -tr %s %s -r bilinear %s %s (-r near for a model of classes), and give %s",
+		t, num(gt[0]), num(gt[3]+float64(g.Height)*gt[5]), num(gt[0]+float64(g.Width)*gt[1]), num(gt[3]),
+		num(math.Abs(gt[1])), num(math.Abs(gt[5])), shellArg(path), shellArg(out), out)
 }
 
 // shellArg is path as a shell command's argument in the commands the
