@@ -276,10 +276,10 @@ var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
 // path's part (a study file's C:\data\x.tif is joined to its folder).
 var windowsDrive = regexp.MustCompile(`(^|/)[A-Za-z]:/`)
 
-// backslashAdvice says what to do with a path that holds backslashes
+// BackslashAdvice says what to do with a path that holds backslashes
 // (written on Windows, as in a study file made there) and does not
 // exist: on this system a backslash is part of a file's name.
-func backslashAdvice(path string) string {
+func BackslashAdvice(path string) string {
 	slashed := strings.ReplaceAll(path, `\`, "/")
 	if windowsDrive.MatchString(slashed) {
 		return "it is a Windows path (a drive letter and backslashes); give the path of the file on this machine, with / between folders"
@@ -331,7 +331,7 @@ func mustExist(what, path string) error {
 				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
 		}
 		if strings.Contains(path, `\`) {
-			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, backslashAdvice(path)))
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, BackslashAdvice(path)))
 		}
 		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
 			return fault.BadInput(fmt.Errorf("%s: %s names a layer inside the path (as a GIS shows a layer's source); areasweep takes a file and uses its first layer of polygons: "+
