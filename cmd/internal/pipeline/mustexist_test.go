@@ -138,6 +138,7 @@ func TestTaxaWarning(t *testing.T) {
 	}{
 		{[]string{"Vornia palustris", "Vornia alia", "Vornia palustris", ""}, "names 2 taxa (Vornia palustris on 2 lines, Vornia alia on 1 line); areasweep scores every line of the table as one species"},
 		{[]string{"a", "b", "c", "d", "e", "f", "g", "g"}, "names 7 taxa (g on 2 lines, a on 1 line, b on 1 line, c on 1 line, d on 1 line, and 2 more)"},
+		{[]string{"Vornia m\xfcller", "Vornia alia", "Vornia alia"}, "(Vornia alia on 2 lines, Vornia m\uFFFDller on 1 line)"},
 		{[]string{"Vornia palustris", "Vornia palustris", ""}, ""},
 		{[]string{"", ""}, ""},
 	}

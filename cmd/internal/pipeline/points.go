@@ -482,7 +482,17 @@ func taxaWarning(path string, recs []inputs.Record) string {
 		if count[n] == 1 {
 			lines = "line"
 		}
-		list = append(list, fmt.Sprintf("%s on %d %s", shortText(n, 60), count[n], lines))
+		// A name in Latin-1 (a table not saved as UTF-8) is shown as
+		// results.json holds it, not as raw bytes on the terminal.
+		name := strings.ToValidUTF8(n, "\uFFFD")
+		if len(name) > 60 {
+			cut := 60
+			for cut > 0 && !utf8.RuneStart(name[cut]) {
+				cut--
+			}
+			name = name[:cut] + "..."
+		}
+		list = append(list, fmt.Sprintf("%s on %d %s", name, count[n], lines))
 	}
 	return fmt.Sprintf("occurrences: the species column of %s names %d taxa (%s); areasweep scores every line of the table as one species (it has no species filter): "+
 		"if the models are of one of them, keep only its lines", path, len(names), strings.Join(list, ", "))
