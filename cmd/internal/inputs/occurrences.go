@@ -423,7 +423,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 				return nil, err
 			}
 			v, err := parseNumber(s, delim != ',')
-			if err != nil && s == "" {
+			if err != nil && missingValue(s) {
 				// A portal's export holds records without coordinates,
 				// often many: name them all at once, not one per run.
 				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; %s", ErrBadNumber, err, emptyCoordinates(line, row, cols, readRow)))
@@ -485,6 +485,18 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	return recs, nil
 }
 
+// missingValue reports whether a coordinate cell holds no value: empty,
+// or a word for a missing value as R (NA), pandas or a database (NaN,
+// null, None) write it.
+func missingValue(s string) bool {
+	for _, w := range []string{"", "na", "n/a", "nan", "null", "none"} {
+		if strings.EqualFold(s, w) {
+			return true
+		}
+	}
+	return false
+}
+
 // emptyCoordinates says what to do about a record whose longitude or
 // latitude is empty (row, at line), as a biodiversity portal's export
 // holds for records without coordinates: it reads the rest of the table
@@ -492,7 +504,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 func emptyCoordinates(line int, row []string, cols columns, readRow func() ([]string, int, error)) string {
 	empty := func(r []string) bool {
 		for _, c := range []column{cols.lon, cols.lat} {
-			if c.index >= len(r) || strings.TrimSpace(r[c.index]) == "" {
+			if c.index >= len(r) || missingValue(strings.TrimSpace(r[c.index])) {
 				return true
 			}
 		}
@@ -522,7 +534,7 @@ func emptyCoordinates(line int, row []string, cols columns, readRow func() ([]st
 	if n > len(lines) {
 		more = fmt.Sprintf(" and %d more", n-len(lines))
 	}
-	return fmt.Sprintf("%d lines have an empty longitude or latitude (lines %s%s), as an export holds records without coordinates; "+
+	return fmt.Sprintf("%d lines have an empty (or NA) longitude or latitude (lines %s%s), as an export holds records without coordinates; "+
 		"such a record cannot be placed: delete those lines, or fill in their coordinates", n, strings.Join(list, ", "), more)
 }
 

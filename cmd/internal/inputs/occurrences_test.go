@@ -147,9 +147,12 @@ func errCases() []errCase {
 		// tab-separated tables; a later record with a bad number is
 		// left to the next run.
 		{name: "empty coordinates on many lines", in: "decimalLatitude\tdecimalLongitude\trole\n1\t2\ttrain\n\t\ttest\n3\t4\ttest\n\t\ttrain\n5\t\ttrain\n" + strings.Repeat("\t\ttest\n", 10) + "x\t1\ttest\n", is: ErrBadNumber, line: 3, field: "decimalLongitude",
-			contains: []string{"cell is empty", "13 lines have an empty longitude or latitude (lines 3, 5, 6, 7, 8, 9, 10, 11, 12, 13 and 3 more)", "delete those lines"}},
+			contains: []string{"cell is empty", "13 lines have an empty (or NA) longitude or latitude (lines 3, 5, 6, 7, 8, 9, 10, 11, 12, 13 and 3 more)", "delete those lines"}},
 		{name: "empty coordinates on two lines", in: "lon,lat,role\n1,2,train\n,,test\n3,4,test\n5,,train\n", is: ErrBadNumber, line: 3, field: "lon",
-			contains: []string{"2 lines have an empty longitude or latitude (lines 3, 5)"}},
+			contains: []string{"2 lines have an empty (or NA) longitude or latitude (lines 3, 5)"}},
+		// R's write.csv writes a missing coordinate as NA.
+		{name: "NA coordinates on three lines", in: "lon,lat,role\n1,2,train\nNA,NA,test\n3,4,test\nNA,-42,train\n5,nan,test\n", is: ErrBadNumber, line: 3, field: "lon",
+			contains: []string{`found "NA"`, "3 lines have an empty (or NA) longitude or latitude (lines 3, 5, 6)"}},
 		{name: "non-numeric latitude", in: "lon,lat,role\n1,2,train\n3,abc,test\n", is: ErrBadNumber, line: 3, field: "lat", contains: []string{`"abc"`, "decimal number", "delete the line"}},
 		{name: "empty longitude", in: "lon,lat,role\n1,2,train\n,4,test\n", is: ErrBadNumber, line: 3, field: "lon", contains: []string{"cell is empty", "longitude"}},
 		{name: "NaN", in: "Longitude,Latitude,role\nNaN,2,train\n", is: ErrBadNumber, line: 2, field: "Longitude", contains: []string{`"NaN"`}},
