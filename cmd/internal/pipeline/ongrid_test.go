@@ -9,6 +9,7 @@ import (
 	"github.com/airbusgeo/godal"
 
 	"areasweep/extent"
+	"areasweep/report"
 )
 
 // TestOnGridCommand: models on two grids are refused with the gdalwarp
@@ -56,5 +57,31 @@ func TestOnGridCommand(t *testing.T) {
 	defer g.Close()
 	if d := first.SameAs(g); d != "" {
 		t.Errorf("the command's output is not on the grid: %s", d)
+	}
+}
+
+// TestSwappedOnGrid: points whose longitude and latitude are both in
+// range but in each other's columns (22.3, -42.5 written as -42.5,
+// 22.3) miss a grid of 20..26 E, 40..45 S; swapped back, each lies on it
+// (by hand: -42.5 is within 40..45 S, 22.3 within 20..26 E), and a
+// point swapped onto no part of it is not counted. Longitudes count
+// modulo 360 (a grid of 170..190 E holds -175).
+func TestSwappedOnGrid(t *testing.T) {
+	g, err := extent.NewGrid(120, 100, [6]float64{20, 0.05, 0, -40, 0, -0.05}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	pts := []report.Point{{Lon: -42.5, Lat: 22.3}, {Lon: -40.01, Lat: 25.99}, {Lon: 22.3, Lat: -42.5}, {Lon: -50, Lat: 22}}
+	if n := swappedOnGrid(pts, g); n != 2 {
+		t.Errorf("swapped points on the grid: %d, want 2", n)
+	}
+	e, err := extent.NewGrid(200, 100, [6]float64{170, 0.1, 0, -10, 0, -0.1}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer e.Close()
+	if n := swappedOnGrid([]report.Point{{Lon: -15, Lat: -175}, {Lon: -15, Lat: 185}}, e); n != 2 {
+		t.Errorf("across 180: %d, want 2", n)
 	}
 }

@@ -766,11 +766,36 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
 		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
 			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
+		} else if n := swappedOnGrid(s.points, s.grid); s.grid.Geographic && 2*n >= len(s.points) && n > 0 {
+			// Longitudes and latitudes both in range, in each other's
+			// columns: the range check cannot see it.
+			msg += fmt.Sprintf("; with longitude and latitude swapped, %d of the %d points would lie on it: the table's longitude and latitude columns probably hold each other's values (rename or swap them)", n, len(s.points))
 		} else {
 			msg += "; check that the points and the raster cover the same area"
 		}
 	}
 	return errors.New(msg)
+}
+
+// swappedOnGrid counts the points that would lie on the latitude-longitude
+// grid g with their longitude and latitude swapped (longitudes taken
+// modulo 360 degrees).
+func swappedOnGrid(pts []report.Point, g *extent.Grid) int {
+	gt := g.GeoTransform
+	west, east := gt[0], gt[0]+float64(g.Width)*gt[1]
+	north, south := gt[3], gt[3]+float64(g.Height)*gt[5]
+	n := 0
+	for _, p := range pts {
+		lon, lat := p.Lat, p.Lon
+		if lat < south || lat >= north {
+			continue
+		}
+		lon = west + math.Mod(math.Mod(lon-west, 360)+360, 360)
+		if lon < east {
+			n++
+		}
+	}
+	return n
 }
 
 // explainCells is the most cells noTestPoint reads to tell a raster of
