@@ -120,6 +120,20 @@ func (s *Study) openGrid() error {
 				}
 				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; %s", m.who(), m.Path, hint))
 			}
+			if err.Error() == m.Path+": "+extent.ErrNoCRS.Error() {
+				// A GeoTIFF without a CRS (not an undefined one): GDAL reads no .prj beside it (a desktop GIS
+				// export's .tif, .tfw and .prj), so name the one there is.
+				stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
+				own := shellArg(stem + "_crs.tif")
+				for _, prj := range []string{stem + ".prj", m.Path + ".prj"} {
+					if st, serr := os.Stat(prj); serr == nil && st.Mode().IsRegular() {
+						return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system of its own, and GDAL does not read the %s beside a GeoTIFF; "+
+							"write that CRS into a copy, e.g. gdal_translate -a_srs %s %s %s, and give the copy", m.who(), m.Path, prj, shellArg(prj), shellArg(m.Path), own))
+					}
+				}
+				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; write the one its coordinates are in into a copy, e.g. gdal_translate -a_srs EPSG:4326 %s %s, and give the copy",
+					m.who(), m.Path, shellArg(m.Path), own))
+			}
 			if v, verr := godal.Open(m.Path, godal.VectorOnly()); verr == nil {
 				v.Close()
 				return fault.BadInput(fmt.Errorf("%s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the raster itself (GeoTIFF or any raster GDAL reads)", m.who(), m.Path))
