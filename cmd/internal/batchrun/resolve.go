@@ -153,7 +153,7 @@ func missingInput(o *pipeline.Options) (string, error) {
 			return fmt.Errorf("%s is a GDAL virtual path or a URL; areasweep reads local files only: download or unzip the file and give its path", path)
 		}
 		st, err := os.Stat(path)
-		if err != nil && strings.Contains(path, `\`) {
+		if err != nil && pipeline.WindowsPath(path) {
 			return fmt.Errorf("%s does not exist: %s", path, pipeline.BackslashAdvice(path))
 		}
 		if err != nil {

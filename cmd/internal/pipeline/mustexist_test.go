@@ -107,6 +107,7 @@ func TestMustExistBackslashes(t *testing.T) {
 		{filepath.Join(dir, `inputs\model.tif`), "a backslash (\\) separates folders on Windows only; write the path with / between folders"},
 		{filepath.Join(dir, `C:\Users\ana\sdm\occ.csv`), "it is a Windows path"},
 		{`D:\sdm\occ.csv`, "it is a Windows path"},
+		{filepath.Join(dir, "D:/sdm/occ.csv"), "it is a Windows path"},
 	}
 	for _, c := range cases {
 		err := mustExist("occurrences", c.path)

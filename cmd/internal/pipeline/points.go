@@ -290,13 +290,20 @@ var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
 // path's part (a study file's C:\data\x.tif is joined to its folder).
 var windowsDrive = regexp.MustCompile(`(^|/)[A-Za-z]:/`)
 
+// WindowsPath reports whether path is written as on Windows: with
+// backslashes, or with a drive letter (a study file's C:/data/x.tif is
+// joined to its folder).
+func WindowsPath(path string) bool {
+	return strings.Contains(path, `\`) || windowsDrive.MatchString(path)
+}
+
 // BackslashAdvice says what to do with a path that holds backslashes
 // (written on Windows, as in a study file made there) and does not
 // exist: on this system a backslash is part of a file's name.
 func BackslashAdvice(path string) string {
 	slashed := strings.ReplaceAll(path, `\`, "/")
 	if windowsDrive.MatchString(slashed) {
-		return "it is a Windows path (a drive letter and backslashes); give the path of the file on this machine, with / between folders"
+		return "it is a Windows path (it starts with a drive letter); give the path of the file on this machine, with / between folders"
 	}
 	advice := "a backslash (\\) separates folders on Windows only; write the path with / between folders"
 	if st, err := os.Stat(slashed); err == nil && !st.IsDir() {
@@ -344,7 +351,7 @@ func mustExist(what, path string) error {
 			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
 		}
-		if strings.Contains(path, `\`) {
+		if WindowsPath(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, BackslashAdvice(path)))
 		}
 		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
