@@ -516,7 +516,7 @@ func taxaWarning(path string, recs []inputs.Record) string {
 		list = append(list, fmt.Sprintf("%s on %d %s", name, count[n], lines))
 	}
 	return fmt.Sprintf("occurrences: the species column of %s names %d taxa (%s); areasweep scores every line of the table as one species (it has no species filter): "+
-		"if the models are of one of them, keep only its lines", path, len(names), strings.Join(list, ", "))
+		"unless they are names of one species (its subspecies or synonyms), keep only the lines of the modelled species", path, len(names), strings.Join(list, ", "))
 }
 
 // zeroWarning names the records at longitude 0 and latitude 0 exactly
