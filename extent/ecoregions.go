@@ -90,6 +90,19 @@ func (b *builder) touchingUnits(units []Unit, counts []int, k int, sel *godal.Ge
 	// (moved by whole turns): units on either side of 180 degrees, written
 	// in -180..180, meet only one turn apart. The selection is also tried
 	// one turn west and east.
+	// Units that share an edge often do not share it to the last bit:
+	// two units whose edge was computed twice (-40 - 2 x 5/3 is
+	// -43.333333333333336, -41.666666666666664 - 5/3 is
+	// -43.33333333333333) leave a gap of 1e-14 degrees, and GEOS's exact
+	// test calls them apart. The selection is grown by a millionth of a
+	// cell side, far below anything the grid can show.
+	tol := 1e-6 * math.Min(math.Abs(b.g.GeoTransform[1]), math.Abs(b.g.GeoTransform[5]))
+	grown, err := sel.Buffer(tol, 2)
+	if err != nil {
+		return nil, fmt.Errorf("extent: %s: the selected units cannot be grown by %g for the touching test (%s); check the unit geometries in a GIS", path, tol, gdalmsg.Cause(err.Error()))
+	}
+	defer grown.Close()
+	sel = grown
 	sels := []*godal.Geometry{sel}
 	if b.g.Geographic {
 		for _, d := range []float64{-360, 360} {

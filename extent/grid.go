@@ -1424,13 +1424,20 @@ func (g *Grid) SameAs(o *Grid) string {
 	if g.Width != o.Width || g.Height != o.Height {
 		diffs = append(diffs, fmt.Sprintf("size %dx%d vs %dx%d", g.Width, g.Height, o.Width, o.Height))
 	}
-	for i, v := range g.GeoTransform {
-		w := o.GeoTransform[i]
-		tol := 1e-9 * math.Max(math.Abs(g.GeoTransform[1]), math.Abs(g.GeoTransform[5]))
-		if math.Abs(v-w) > tol {
-			diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v", g.GeoTransform, o.GeoTransform))
-			break
-		}
+	// The cells must lie at the same places: the grids' four corners
+	// within a millionth of a cell (as the CRS comparison below), so
+	// that a header that writes the origin and cell size in fewer
+	// digits (an ESRI ASCII grid as GDAL writes it, 12 decimals: a
+	// 1/24 degree cell as 0.041666666667) is the same grid as the
+	// GeoTIFF it was made from, whose corner then differs by some 1e-9
+	// of a cell. The rotation terms are compared as before.
+	a, b := g.GeoTransform, o.GeoTransform
+	cell := math.Max(math.Abs(a[1]), math.Abs(a[5]))
+	w, h := float64(g.Width), float64(g.Height)
+	off := func(v, u float64) bool { return math.Abs(v-u) > 1e-6*cell }
+	if off(a[0], b[0]) || off(a[3], b[3]) || off(a[0]+w*a[1], b[0]+w*b[1]) || off(a[3]+h*a[5], b[3]+h*b[5]) ||
+		math.Abs(a[2]-b[2]) > 1e-9*cell || math.Abs(a[4]-b[4]) > 1e-9*cell {
+		diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v", g.GeoTransform, o.GeoTransform))
 	}
 	if !sameCRS(g, o) {
 		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))

@@ -303,3 +303,45 @@ func TestLongPathGeoPackage(t *testing.T) {
 		t.Errorf("%q blames the file", err)
 	}
 }
+
+// TestKMLFoldersPinThenArea: a KML as Google Earth saves it, a folder of
+// pins before the folder holding the area (GDAL reads each folder as a
+// layer whose geometry type is unknown), is read from the folder holding
+// polygons: the cells of the same square given alone in a GeoJSON file,
+// with a warning naming the folders. The pin's folder was read, and the
+// run refused "feature 1 is a point" without naming the other folder.
+func TestKMLFoldersPinThenArea(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
+	kml := filepath.Join(dir, "study.kml")
+	os.WriteFile(kml, []byte(`<?xml version="1.0" encoding="UTF-8"?>
+<kml xmlns="http://www.opengis.net/kml/2.2"><Document><name>Study</name>
+<Folder><name>Pins</name><Placemark><name>Field station</name><Point><coordinates>1.5,1.5,0</coordinates></Point></Placemark></Folder>
+<Folder><name>Area</name><Placemark><name>M</name><Polygon><outerBoundaryIs><LinearRing><coordinates>0.55,0.55,0 3.05,0.55,0 3.05,2.95,0 0.55,2.95,0 0.55,0.55,0</coordinates></LinearRing></outerBoundaryIs></Polygon></Placemark></Folder>
+</Document></kml>`), 0o644)
+	plain := filepath.Join(dir, "plain.geojson")
+	os.WriteFile(plain, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0.55,0.55],[3.05,0.55],[3.05,2.95],[0.55,2.95],[0.55,0.55]]]}}]}`), 0o644)
+	cells := func(path string) (int, []string) {
+		t.Helper()
+		s, warns, err := ReadShape(path, g)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := 0
+		Fill(g, s.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+		return n, warns
+	}
+	want, _ := cells(plain)
+	got, warns := cells(kml)
+	if got != want || want == 0 {
+		t.Errorf("cells %d, want %d (the square alone)", got, want)
+	}
+	named := false
+	for _, w := range warns {
+		named = named || strings.Contains(w, `the first holding polygons, "Area"`) && strings.Contains(w, "(Pins, Area)")
+	}
+	if !named {
+		t.Errorf("no warning names the folder read and the others: %q", warns)
+	}
+}

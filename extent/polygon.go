@@ -243,14 +243,28 @@ func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 	if len(layers) == 1 {
 		return layer, ""
 	}
-	which := "the first"
+	which, found := "the first", false
 	for i, l := range layers {
 		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
 			if i > 0 {
 				which = "the first of polygons"
 			}
-			layer = l
+			layer, found = l, true
 			break
+		}
+	}
+	if !found {
+		// No layer declares polygons (a KML's folders, whose declared
+		// type is unknown: Google Earth's pins in one, the area in
+		// another): the first whose features hold one.
+		for i, l := range layers {
+			if holdsPolygon(l) {
+				if i > 0 {
+					which = "the first holding polygons"
+				}
+				layer = l
+				break
+			}
 		}
 	}
 	var names []string
@@ -263,6 +277,27 @@ func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 	}
 	return layer, fmt.Sprintf("%s has %d layers (%s); using %s, %q (to use another, save it alone with ogr2ogr OUT.gpkg %s LAYER)",
 		path, len(layers), strings.Join(names, ", "), which, layer.Name(), path)
+}
+
+// holdsPolygon reports whether a feature of l is a polygon area (as
+// checkFeatureTypes takes it).
+func holdsPolygon(l godal.Layer) bool {
+	l.ResetReading()
+	defer l.ResetReading()
+	for {
+		f := l.NextFeature()
+		if f == nil {
+			return false
+		}
+		ok := false
+		if g := f.Geometry(); !noGeometry(g) {
+			ok = polygonProblem(g) == ""
+		}
+		f.Close()
+		if ok {
+			return true
+		}
+	}
 }
 
 // ready picks the layer and checks and prepares it (see openPolygons).

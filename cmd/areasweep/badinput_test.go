@@ -380,6 +380,13 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	ecoEmpty := f.file("eco_empty.geojson", polygonJSON(squareGeom, `"unit":""`))
 	ecoGood := f.file("eco_good.geojson", polygonJSON(squareGeom, `"unit":"a"`))
 	ecoPoint := f.file("eco_point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, `"unit":"a"`))
+	// A GeoTIFF as a desktop GIS exports it: .tif, .tfw and a .prj,
+	// which GDAL does not read beside a GeoTIFF.
+	tifPrj := filepath.Join(f.dir, "tifprj.tif")
+	writeRaster(t, tifPrj, f.w, f.h, f.gt, f.vals, false)
+	f.file("tifprj.prj", `GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]`)
+	tifNoPrj := filepath.Join(f.dir, "tifnoprj.tif")
+	writeRaster(t, tifNoPrj, f.w, f.h, f.gt, f.vals, false)
 	noCRSshp := filepath.Join(f.dir, "nocrs.shp")
 	{
 		ds, err := godal.CreateVector(godal.Shapefile, noCRSshp)
@@ -605,6 +612,9 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences no train", f.withOcc(f.file("notrain.csv", "lon,lat,role\n13.5,43,test\n")), 2, []string{"notrain.csv", "train"}, "", ""},
 		{"occurrences bad quote", f.withOcc(f.file("quote.csv", occHeader+"13.5,\"43,test\n")), 2, []string{"quote.csv line 3", "quote"}, "", ""},
 		{"occurrences all outside", f.withOcc(f.file("outside.csv", "lon,lat,role\n100,10,train\n101,11,test\n")), 2, []string{"outside.csv", "outside the raster"}, "", ""},
+		// Both in range, in each other's columns: the range check cannot
+		// tell, the grid (10..22 E, 40..48 N) can.
+		{"occurrences swapped within range", f.withOcc(f.file("swapped2.csv", "lon,lat,role\n43,13.5,train\n44,14,test\n")), 2, []string{"swapped2.csv", "every point lies outside the raster", "with longitude and latitude swapped, 2 of the 2 points would lie on it"}, "", ""},
 		{"occurrences degrees with a projected CRS", f.withOcc(f.file("degrees.csv", far.String()), "--occurrences-crs", "EPSG:3035"), 2, []string{"degrees.csv", "look like degrees", "EPSG:3035"}, "", ""},
 		{"occurrences test points on no data", f.withOcc(f.file("nodata.csv", "lon,lat,role\n13.5,43,train\n21.5,40.5,test\n")), 2, []string{"nodata.csv", "no test point", "model.tif"}, "", ""},
 
@@ -624,6 +634,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model of 0 bytes", f.withModel(f.file("zero.tif", "")), 2, []string{"model m", "zero.tif", "empty (0 bytes)"}, "", ""},
 		{"region of 0 bytes", f.withRegion(f.file("zero.gpkg", "")), 2, []string{"region", "zero.gpkg", "empty (0 bytes)"}, "", ""},
 		{"model truncated", f.withModel(truncated), 2, []string{"truncated.tif"}, "", ""},
+		{"model: a GeoTIFF without CRS beside its .prj", f.withModel(tifPrj), 2, []string{"tifprj.tif has no coordinate reference system of its own", "GDAL does not read the", "gdal_translate -a_srs " + filepath.Join(f.dir, "tifprj.prj") + " " + tifPrj + " " + filepath.Join(f.dir, "tifprj_crs.tif")}, "", ""},
+		{"model: a GeoTIFF without CRS", f.withModel(tifNoPrj), 2, []string{"tifnoprj.tif has no coordinate reference system", "gdal_translate -a_srs EPSG:4326 " + tifNoPrj + " " + filepath.Join(f.dir, "tifnoprj_crs.tif")}, "", ""},
 		{"model: an ASCII grid without .prj", f.withModel(f.file("noprj.asc", "ncols 2\nnrows 2\nxllcorner 10\nyllcorner 40\ncellsize 0.25\n1 2\n3 4\n")), 2, []string{"noprj.asc", "no coordinate reference system", "noprj.prj", "gdal_translate -a_srs"}, "", ""},
 		{"model with nodata in an .aux.xml only", f.withModel(auxNoData), 2, []string{"model m", "auxnodata.tif.aux.xml", "the nodata value 0", "never reads .aux.xml", "gdal_translate " + auxNoData}, "", ""},
 		{"model whose .aux.xml begins with an XML declaration", f.withModel(auxDeclared), 2, []string{"model m", "auxdecl.tif.aux.xml", "the nodata value 0", "remove its first line", "gdal_translate " + auxDeclared}, "", ""},

@@ -153,6 +153,9 @@ func missingInput(o *pipeline.Options) (string, error) {
 			return fmt.Errorf("%s is a GDAL virtual path or a URL; areasweep reads local files only: download or unzip the file and give its path", path)
 		}
 		st, err := os.Stat(path)
+		if err != nil && pipeline.WindowsPath(path) {
+			return fmt.Errorf("%s does not exist: %s", path, pipeline.BackslashAdvice(path))
+		}
 		if err != nil {
 			return fmt.Errorf("%s does not exist or cannot be read; check the path", path)
 		}

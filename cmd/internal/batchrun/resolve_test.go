@@ -3,6 +3,7 @@ package batchrun
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"areasweep/cmd/internal/batch"
@@ -87,5 +88,21 @@ func TestSettingsDiff(t *testing.T) {
 		if got := settingsDiff(c.was, c.now); got != c.want {
 			t.Errorf("%s: %q, want %q", c.name, got, c.want)
 		}
+	}
+}
+
+// TestMissingInputBackslashes: a study table made on Windows (Excel)
+// whose paths use backslashes names the file the path with / would be,
+// instead of "does not exist or cannot be read; check the path".
+func TestMissingInputBackslashes(t *testing.T) {
+	dir := t.TempDir()
+	os.MkdirAll(filepath.Join(dir, "inputs"), 0o755)
+	occ := filepath.Join(dir, "inputs", "occ.csv")
+	os.WriteFile(occ, []byte("x"), 0o644)
+	o := &pipeline.Options{}
+	o.Occurrences = filepath.Join(dir, `inputs\occ.csv`)
+	col, err := missingInput(o)
+	if col != "occurrences" || err == nil || !strings.Contains(err.Error(), "write the path with / between folders ("+occ+" exists)") {
+		t.Errorf("column %q: %v", col, err)
 	}
 }

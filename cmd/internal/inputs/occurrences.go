@@ -26,7 +26,16 @@ type Record struct {
 	// Role is vocab.RoleTrain (a record used to calibrate the model) or
 	// vocab.RoleTest (a record held out to evaluate it).
 	Role vocab.Role
+	// Taxon is the record's name in the table's species column (the
+	// first of TaxonNames in the header; "" without one), which only a
+	// warning reads: every record is scored as one species.
+	Taxon string
 }
+
+// TaxonNames are the headers of a species column, in order of
+// preference (case ignored): a portal's export has several, and
+// "species" is the name without author or subspecies.
+var TaxonNames = []string{"species", "scientificname", "scientific_name", "species_name", "taxon"}
 
 // Sentinel errors of the occurrence reader. They are wrapped inside a
 // *ParseError; test for them with errors.Is.
@@ -377,6 +386,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	}
 
 	var recs []Record
+	taxa := map[string]string{}
 	for {
 		row, line, err := readRow()
 		if err == io.EOF {
@@ -413,6 +423,11 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 				return nil, err
 			}
 			v, err := parseNumber(s, delim != ',')
+			if err != nil && missingValue(s) {
+				// A portal's export holds records without coordinates,
+				// often many: name them all at once, not one per run.
+				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; %s", ErrBadNumber, err, emptyCoordinates(line, row, cols, readRow)))
+			}
 			if err != nil {
 				return nil, perr(line, c.col.name, fmt.Errorf("%w: %s; write the %s as a decimal number "+
 					"such as -12.5 (dot as decimal separator), or delete the line%s", ErrBadNumber, err, c.what, commaHint(delim, len(row), len(hdr))))
@@ -428,6 +443,15 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			return nil, perr(line, cols.role.name, fmt.Errorf("%w: found %s; %s%s", ErrBadRole, shown(s), roleAdvice, commaHint(delim, len(row), len(hdr))))
 		}
 		rec.Role = role
+		if i := cols.taxon.index; i >= 0 && i < len(row) {
+			if rec.Taxon = strings.TrimSpace(row[i]); rec.Taxon != "" {
+				if t, ok := taxa[rec.Taxon]; ok {
+					rec.Taxon = t // one copy of each name
+				} else {
+					taxa[rec.Taxon] = rec.Taxon
+				}
+			}
+		}
 		recs = append(recs, rec)
 	}
 
@@ -459,6 +483,59 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// missingValue reports whether a coordinate cell holds no value: empty,
+// or a word for a missing value as R (NA), pandas or a database (NaN,
+// null, None) write it.
+func missingValue(s string) bool {
+	for _, w := range []string{"", "na", "n/a", "nan", "null", "none"} {
+		if strings.EqualFold(s, w) {
+			return true
+		}
+	}
+	return false
+}
+
+// emptyCoordinates says what to do about a record whose longitude or
+// latitude is empty (row, at line), as a biodiversity portal's export
+// holds for records without coordinates: it reads the rest of the table
+// for more such lines and names how many there are and the first ten.
+func emptyCoordinates(line int, row []string, cols columns, readRow func() ([]string, int, error)) string {
+	empty := func(r []string) bool {
+		for _, c := range []column{cols.lon, cols.lat} {
+			if c.index >= len(r) || missingValue(strings.TrimSpace(r[c.index])) {
+				return true
+			}
+		}
+		return false
+	}
+	lines := []int{line}
+	n := 1
+	for {
+		r, l, err := readRow()
+		if err != nil {
+			break // the end, or a line the next run names
+		}
+		if empty(r) {
+			if n++; len(lines) < 10 {
+				lines = append(lines, l)
+			}
+		}
+	}
+	if n == 1 {
+		return "a record without coordinates cannot be placed: write its longitude and latitude as decimal numbers such as -12.5, or delete the line"
+	}
+	list := make([]string, len(lines))
+	for i, l := range lines {
+		list[i] = strconv.Itoa(l)
+	}
+	more := ""
+	if n > len(lines) {
+		more = fmt.Sprintf(" and %d more", n-len(lines))
+	}
+	return fmt.Sprintf("%d lines have an empty (or NA) longitude or latitude (lines %s%s), as an export holds records without coordinates; "+
+		"such a record cannot be placed: delete those lines, or fill in their coordinates", n, strings.Join(list, ", "), more)
 }
 
 // utf16WithoutBOM returns "little-endian" or "big-endian" when head reads
@@ -590,7 +667,7 @@ type column struct {
 	name  string // header spelling as written (trimmed)
 }
 
-type columns struct{ lon, lat, role column }
+type columns struct{ lon, lat, role, taxon column }
 
 // detectDelimiter returns ',' when the header line contains a comma, else
 // ';' or '\t', whichever the line holds more of (';' on a tie). A header
@@ -624,7 +701,7 @@ func delimiterName(d rune) string {
 
 // findColumns locates the longitude, latitude and role columns.
 func findColumns(hdr []string, delim rune) (columns, error) {
-	var c columns
+	c := columns{taxon: column{index: -1}}
 	found := [3]bool{}
 	targets := []struct {
 		names []string
@@ -644,6 +721,13 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 			}
 			found[t] = true
 			*tg.dst = column{index: i, name: name}
+		}
+	}
+	for _, want := range TaxonNames {
+		for i, h := range hdr {
+			if c.taxon.index < 0 && strings.ToLower(strings.TrimSpace(h)) == want {
+				c.taxon = column{index: i, name: strings.TrimSpace(h)}
+			}
 		}
 	}
 	// At most 12 fields are quoted (a GBIF download has some 250), each

@@ -68,11 +68,16 @@ func okCases() []okCase {
 		{name: "semicolon header with a comma in a name", in: "lon;lat;role;site, notes\n1,5;2,5;train;a, b\n-3;4;test;c\n", geographic: true, want: twoRecs},
 		{name: "quoted semicolon header with a comma in a name", in: "\"lon\";\"lat\";\"role\";\"site, notes\"\n1,5;2,5;train;\"a, b\"\n-3;4;test;c\n", geographic: true, want: twoRecs},
 		{name: "tab header with a comma in a name", in: "lon\tlat\trole\tsite, notes\n1.5\t2.5\ttrain\ta, b\n-3\t4\ttest\tc\n", geographic: true, want: twoRecs},
-		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true, want: twoRecs},
+		{name: "extra columns and other order", in: "role,species,lat,id,lon\ntrain,Puma concolor,2.5,1,1.5\ntest,Puma concolor,4,2,-3\n", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain, Taxon: "Puma concolor"}, {Line: 3, X: -3, Y: 4, Role: vocab.RoleTest, Taxon: "Puma concolor"}}},
+		// The species column: "species" before "scientificName", as a
+		// portal's export has both.
+		{name: "species column of an export", in: "scientificName\tspecies\tdecimalLongitude\tdecimalLatitude\trole\nPuma concolor (Linnaeus, 1771)\tPuma concolor\t1.5\t2.5\ttrain\nPuma concolor couguar\t Puma concolor \t-3\t4\ttest\n", geographic: true,
+			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain, Taxon: "Puma concolor"}, {Line: 3, X: -3, Y: 4, Role: vocab.RoleTest, Taxon: "Puma concolor"}}},
 		{name: "quoted cells", in: "\"lon\",\"lat\",\"role\"\n\"1.5\",\"2.5\",\"train\"\n\"-3\",\"4\",\"test\"\n", geographic: true, want: twoRecs},
 		{name: "comma delimiter quoted cell with comma", in: "lon,lat,role,note\n1.5,2.5,train,\"a, b\"\n-3,4,test,c\n", geographic: true, want: twoRecs},
 		{name: "role spellings", in: "lon,lat,role\n1,1,Train\n2,2,TRAINING\n3,3,test\n4,4,Testing\n5,5, training \n", geographic: true,
-			want: []Record{{2, 1, 1, vocab.RoleTrain}, {3, 2, 2, vocab.RoleTrain}, {4, 3, 3, vocab.RoleTest}, {5, 4, 4, vocab.RoleTest}, {6, 5, 5, vocab.RoleTrain}}},
+			want: []Record{{2, 1, 1, vocab.RoleTrain, ""}, {3, 2, 2, vocab.RoleTrain, ""}, {4, 3, 3, vocab.RoleTest, ""}, {5, 4, 4, vocab.RoleTest, ""}, {6, 5, 5, vocab.RoleTrain, ""}}},
 		{name: "blank lines keep physical line numbers", in: "\n\nlon,lat,role\n\n1.5,2.5,train\n   \n,,\n-3,4,test\n\n", geographic: true,
 			want: []Record{{Line: 5, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 8, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "semicolon rows of empty cells skipped", in: "lon;lat;role\n1,5;2,5;train\n;;\n-3;4;test\n;;\n", geographic: true,
@@ -82,11 +87,11 @@ func okCases() []okCase {
 		{name: "minus sign U+2212", in: "lon;lat;role\n1,5;2,5;train\n\u22123;4;test\n", geographic: true, want: twoRecs},
 		{name: "number forms", in: "lon,lat,role\n+1.5,.25e1,train\n-3.,4E0,test\n", geographic: true, want: twoRecs},
 		{name: "longitude 0..360 and range edges", in: "lon,lat,role\n360,90,train\n-180,-90,test\n", geographic: true,
-			want: []Record{{2, 360, 90, vocab.RoleTrain}, {3, -180, -90, vocab.RoleTest}}},
+			want: []Record{{2, 360, 90, vocab.RoleTrain, ""}, {3, -180, -90, vocab.RoleTest, ""}}},
 		{name: "projected values not range checked", in: "x,y,role\n500000,4649776.22,train\n-20000,9999999,test\n", geographic: false,
-			want: []Record{{2, 500000, 4649776.22, vocab.RoleTrain}, {3, -20000, 9999999, vocab.RoleTest}}},
+			want: []Record{{2, 500000, 4649776.22, vocab.RoleTrain, ""}, {3, -20000, 9999999, vocab.RoleTest, ""}}},
 		{name: "projected large latitude-like values not swapped", in: "lon,lat,role\n10,120,train\n20,-300,test\n", geographic: false,
-			want: []Record{{2, 10, 120, vocab.RoleTrain}, {3, 20, -300, vocab.RoleTest}}},
+			want: []Record{{2, 10, 120, vocab.RoleTrain, ""}, {3, 20, -300, vocab.RoleTest, ""}}},
 		{name: "row longer than header", in: "lon,lat,role\n1.5,2.5,train,extra,cells\n-3,4,test\n", geographic: true, want: twoRecs},
 		// A GBIF download is tab-separated and quotes nothing: quotes in a
 		// locality are ordinary characters, even at the start of a cell.
@@ -137,6 +142,17 @@ func errCases() []errCase {
 		{name: "no role column", in: "lon,lat,set\n1,2,train\n", is: ErrNoRole, line: 1, contains: []string{`"set"`, "add a column named role", "train, training, test and testing"}},
 		{name: "two longitude columns", in: "x,lon,lat,role\n1,1,2,train\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"x" and "lon"`, "longitude", "rename or delete one"}},
 		{name: "two role columns", in: "lon,lat,role,ROLE\n1,2,train,test\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"role" and "ROLE"`}},
+		// A portal's export: records without coordinates are named all
+		// at once (count and first ten lines), in comma- and
+		// tab-separated tables; a later record with a bad number is
+		// left to the next run.
+		{name: "empty coordinates on many lines", in: "decimalLatitude\tdecimalLongitude\trole\n1\t2\ttrain\n\t\ttest\n3\t4\ttest\n\t\ttrain\n5\t\ttrain\n" + strings.Repeat("\t\ttest\n", 10) + "x\t1\ttest\n", is: ErrBadNumber, line: 3, field: "decimalLongitude",
+			contains: []string{"cell is empty", "13 lines have an empty (or NA) longitude or latitude (lines 3, 5, 6, 7, 8, 9, 10, 11, 12, 13 and 3 more)", "delete those lines"}},
+		{name: "empty coordinates on two lines", in: "lon,lat,role\n1,2,train\n,,test\n3,4,test\n5,,train\n", is: ErrBadNumber, line: 3, field: "lon",
+			contains: []string{"2 lines have an empty (or NA) longitude or latitude (lines 3, 5)"}},
+		// R's write.csv writes a missing coordinate as NA.
+		{name: "NA coordinates on three lines", in: "lon,lat,role\n1,2,train\nNA,NA,test\n3,4,test\nNA,-42,train\n5,nan,test\n", is: ErrBadNumber, line: 3, field: "lon",
+			contains: []string{`found "NA"`, "3 lines have an empty (or NA) longitude or latitude (lines 3, 5, 6)"}},
 		{name: "non-numeric latitude", in: "lon,lat,role\n1,2,train\n3,abc,test\n", is: ErrBadNumber, line: 3, field: "lat", contains: []string{`"abc"`, "decimal number", "delete the line"}},
 		{name: "empty longitude", in: "lon,lat,role\n1,2,train\n,4,test\n", is: ErrBadNumber, line: 3, field: "lon", contains: []string{"cell is empty", "longitude"}},
 		{name: "NaN", in: "Longitude,Latitude,role\nNaN,2,train\n", is: ErrBadNumber, line: 2, field: "Longitude", contains: []string{`"NaN"`}},
@@ -259,7 +275,7 @@ func TestSwapNeedsGeographic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []Record{{2, 45.2, -120.5, vocab.RoleTrain}, {3, -33.9, 151.2, vocab.RoleTest}}
+	want := []Record{{2, 45.2, -120.5, vocab.RoleTrain, ""}, {3, -33.9, 151.2, vocab.RoleTest, ""}}
 	if !reflect.DeepEqual(got, want) {
 		t.Fatalf("got %+v want %+v", got, want)
 	}

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 )
 
 // TestMustExistUnreadable: an input file the user cannot read is refused
@@ -49,5 +50,123 @@ func TestMustExistEmptyAndCommas(t *testing.T) {
 	}
 	if err := mustExist("model a", filepath.Join(dir, "a.tif,b="+filepath.Join(dir, "b.tif"))); err == nil || !strings.Contains(err.Error(), "several NAME=PATH items") {
 		t.Errorf("two items in one flag: %v", err)
+	}
+}
+
+// TestMustExistLayerInPath: a layer named in the path, as QGIS shows a
+// layer's source (FILE|layername=NAME, FILE|layerid=N) or as FILE:LAYER,
+// is refused saying that areasweep takes a file and how to save the
+// layer alone, instead of "does not exist or cannot be read; check the
+// path" for a file that exists.
+func TestMustExistLayerInPath(t *testing.T) {
+	dir := t.TempDir()
+	gpkg := filepath.Join(dir, "study.gpkg")
+	if err := os.WriteFile(gpkg, []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ path, want string }{
+		{gpkg + "|layername=m_large", "ogr2ogr OUT.gpkg " + gpkg + " m_large;"},
+		{gpkg + "|layerid=2", "ogr2ogr OUT.gpkg " + gpkg + " LAYER;"},
+		{gpkg + "|layername=m large|subset=x", "ogr2ogr OUT.gpkg " + gpkg + " 'm large';"},
+		{gpkg + ":m_large", "ogr2ogr OUT.gpkg " + gpkg + " m_large;"},
+	}
+	for _, c := range cases {
+		err := mustExist("region", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "names a layer inside the path") || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+	if err := mustExist("region", filepath.Join(dir, "other.gpkg|layername=m")); err == nil || !strings.Contains(err.Error(), "does not exist or cannot be read") {
+		t.Errorf("a layer of a missing file: %v", err)
+	}
+}
+
+// TestMustExistLayerInPathRaster: a model's path is not read as naming
+// a layer.
+func TestMustExistLayerInPathRaster(t *testing.T) {
+	tif := filepath.Join(t.TempDir(), "m.tif")
+	os.WriteFile(tif, []byte("x"), 0o644)
+	if err := mustExist("model m", tif+":2"); err == nil || strings.Contains(err.Error(), "layer") {
+		t.Errorf("model: %v", err)
+	}
+}
+
+// TestMustExistBackslashes: a path written with Windows's backslashes (a
+// study file made on Windows, whose relative paths are joined to its
+// folder) is refused saying that / separates folders here, naming the
+// file that the path with / would be when it exists, and a path with a
+// drive letter as a Windows path.
+func TestMustExistBackslashes(t *testing.T) {
+	dir := t.TempDir()
+	os.MkdirAll(filepath.Join(dir, "inputs", "rasters"), 0o755)
+	tif := filepath.Join(dir, "inputs", "rasters", "model.tif")
+	os.WriteFile(tif, []byte("x"), 0o644)
+	cases := []struct{ path, want string }{
+		{filepath.Join(dir, `inputs\rasters\model.tif`), "write the path with / between folders (" + tif + " exists)"},
+		{filepath.Join(dir, `.\inputs\rasters\model.tif`), "write the path with / between folders (" + tif + " exists)"},
+		{filepath.Join(dir, `inputs\model.tif`), "a backslash (\\) separates folders on Windows only; write the path with / between folders"},
+		{filepath.Join(dir, `C:\Users\ana\sdm\occ.csv`), "it is a Windows path"},
+		{`D:\sdm\occ.csv`, "it is a Windows path"},
+		{filepath.Join(dir, "D:/sdm/occ.csv"), "it is a Windows path"},
+	}
+	for _, c := range cases {
+		err := mustExist("occurrences", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+	if err := mustExist("occurrences", filepath.Join(dir, `inputs\model.tif`)); strings.Contains(err.Error(), "exists)") {
+		t.Errorf("names a file that does not exist: %v", err)
+	}
+}
+
+// TestTaxaWarning: an occurrence table whose species column names more
+// than one taxon (a portal's export of a genus) is warned about, the
+// taxa listed by their number of lines (counted by hand from recs), as
+// every line is scored as one species; one taxon, or no species column,
+// gives no warning.
+func TestTaxaWarning(t *testing.T) {
+	recs := func(names ...string) []inputs.Record {
+		var r []inputs.Record
+		for i, n := range names {
+			r = append(r, inputs.Record{Line: i + 2, Taxon: n})
+		}
+		return r
+	}
+	cases := []struct {
+		names []string
+		want  string
+	}{
+		{[]string{"Vornia palustris", "Vornia alia", "Vornia palustris", ""}, "names 2 taxa (Vornia palustris on 2 lines, Vornia alia on 1 line); areasweep scores every line of the table as one species"},
+		{[]string{"a", "b", "c", "d", "e", "f", "g", "g"}, "names 7 taxa (g on 2 lines, a on 1 line, b on 1 line, c on 1 line, d on 1 line, and 2 more)"},
+		{[]string{"Vornia m\xfcller", "Vornia alia", "Vornia alia"}, "(Vornia alia on 2 lines, Vornia m\uFFFDller on 1 line)"},
+		{[]string{"Vornia palustris", "Vornia palustris", ""}, ""},
+		{[]string{"", ""}, ""},
+	}
+	for _, c := range cases {
+		got := taxaWarning("occ.tsv", recs(c.names...))
+		if (c.want == "") != (got == "") || !strings.Contains(got, c.want) {
+			t.Errorf("%v: got %q, want %q", c.names, got, c.want)
+		}
+	}
+}
+
+// TestZeroWarning: records at exactly 0, 0 in degrees (the placeholder
+// of a missing coordinate) are named, ten lines at most; a projected
+// table's 0, 0 is a place like any other.
+func TestZeroWarning(t *testing.T) {
+	var recs []inputs.Record
+	for i := 0; i < 12; i++ {
+		recs = append(recs, inputs.Record{Line: 2 + 2*i, X: 0, Y: 0}, inputs.Record{Line: 3 + 2*i, X: 0, Y: 0.5})
+	}
+	got := zeroWarning("occ.csv", recs, true)
+	if want := "12 record(s) of occ.csv lie at longitude 0, latitude 0 exactly (lines 2, 4, 6, 8, 10, 12, 14, 16, 18, 20 and 2 more)"; !strings.Contains(got, want) {
+		t.Errorf("got %q, want %q", got, want)
+	}
+	if got := zeroWarning("occ.csv", recs, false); got != "" {
+		t.Errorf("projected: %q", got)
+	}
+	if got := zeroWarning("occ.csv", recs[1:2], true); got != "" {
+		t.Errorf("no record at 0, 0: %q", got)
 	}
 }

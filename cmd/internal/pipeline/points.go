@@ -120,6 +120,20 @@ func (s *Study) openGrid() error {
 				}
 				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; %s", m.who(), m.Path, hint))
 			}
+			if err.Error() == m.Path+": "+extent.ErrNoCRS.Error() {
+				// A GeoTIFF without a CRS (not an undefined one): GDAL reads no .prj beside it (a desktop GIS
+				// export's .tif, .tfw and .prj), so name the one there is.
+				stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
+				own := shellArg(stem + "_crs.tif")
+				for _, prj := range []string{stem + ".prj", m.Path + ".prj"} {
+					if st, serr := os.Stat(prj); serr == nil && st.Mode().IsRegular() {
+						return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system of its own, and GDAL does not read the %s beside a GeoTIFF; "+
+							"write that CRS into a copy, e.g. gdal_translate -a_srs %s %s %s, and give the copy", m.who(), m.Path, prj, shellArg(prj), shellArg(m.Path), own))
+					}
+				}
+				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; write the one its coordinates are in into a copy, e.g. gdal_translate -a_srs EPSG:4326 %s %s, and give the copy",
+					m.who(), m.Path, shellArg(m.Path), own))
+			}
 			if v, verr := godal.Open(m.Path, godal.VectorOnly()); verr == nil {
 				v.Close()
 				return fault.BadInput(fmt.Errorf("%s: %s is a vector file or a table (GDAL reads features from it, not cells), not a raster; give the raster itself (GeoTIFF or any raster GDAL reads)", m.who(), m.Path))
@@ -153,8 +167,9 @@ func (s *Study) openGrid() error {
 			continue
 		}
 		if d := s.grid.SameAs(g); d != "" {
-			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid (e.g. gdalwarp -tr/-te)",
-				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d))
+			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid, e.g. %s onto the grid of %s: %s",
+				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d, m.Name, s.models[0].Name,
+				onGridCommand(s.grid, s.models[0].Path, m.Path, strings.Contains(d, "CRS "))))
 		}
 		g.Close()
 	}
@@ -165,6 +180,27 @@ func (s *Study) openGrid() error {
 		s.logf("cell area ratios of the blocks computed in %.2f s (once for every model of the run, and every study of a batch, on this grid)", g.FactorTime.Seconds())
 	}
 	return nil
+}
+
+// onGridCommand is the gdalwarp command that resamples the raster at
+// path onto grid g (the first model's, read from first): its extent
+// (-te) and cell size (-tr), bilinear, and its CRS when crs is set (as
+// EPSG:N when it has that code, else named by the first model).
+func onGridCommand(g *extent.Grid, first, path string, crs bool) string {
+	gt := g.GeoTransform
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	t := ""
+	if crs {
+		if strings.HasPrefix(g.CRS, "EPSG:") {
+			t = " -t_srs " + g.CRS
+		} else {
+			t = " -t_srs CRS (the CRS of " + first + ")"
+		}
+	}
+	out := strings.TrimSuffix(path, filepath.Ext(path)) + "_on_grid.tif"
+	return fmt.Sprintf("gdalwarp%s -te %s %s %s %s -tr %s %s -r bilinear %s %s (-r near for a model of classes), and give %s",
+		t, num(gt[0]), num(gt[3]+float64(g.Height)*gt[5]), num(gt[0]+float64(g.Width)*gt[1]), num(gt[3]),
+		num(math.Abs(gt[1])), num(math.Abs(gt[5])), shellArg(path), shellArg(out), out)
 }
 
 // shellArg is path as a shell command's argument in the commands the
@@ -250,6 +286,56 @@ var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
 // Windows drive letter is not one).
 var gdalSubdataset = regexp.MustCompile(`^[A-Z][A-Z0-9_]+:.+:`)
 
+// windowsDrive matches a Windows drive letter starting a path or a
+// path's part (a study file's C:\data\x.tif is joined to its folder).
+var windowsDrive = regexp.MustCompile(`(^|/)[A-Za-z]:/`)
+
+// WindowsPath reports whether path is written as on Windows: with
+// backslashes, or with a drive letter (a study file's C:/data/x.tif is
+// joined to its folder).
+func WindowsPath(path string) bool {
+	return strings.Contains(path, `\`) || windowsDrive.MatchString(path)
+}
+
+// BackslashAdvice says what to do with a path that holds backslashes
+// (written on Windows, as in a study file made there) and does not
+// exist: on this system a backslash is part of a file's name.
+func BackslashAdvice(path string) string {
+	slashed := strings.ReplaceAll(path, `\`, "/")
+	if windowsDrive.MatchString(slashed) {
+		return "it is a Windows path (it starts with a drive letter); give the path of the file on this machine, with / between folders"
+	}
+	advice := "a backslash (\\) separates folders on Windows only; write the path with / between folders"
+	if st, err := os.Stat(slashed); err == nil && !st.IsDir() {
+		advice += fmt.Sprintf(" (%s exists)", filepath.Clean(slashed))
+	}
+	return advice
+}
+
+// layerInPath splits a path that names a layer of an existing file the
+// way QGIS writes a layer's source (regions.gpkg|layername=m or
+// |layerid=1) or as FILE:LAYER, and returns the file and the layer
+// (LAYER for a layer id, which names no layer ogr2ogr takes).
+func layerInPath(path string) (file, layer string, ok bool) {
+	exists := func(f string) bool {
+		st, err := os.Stat(f)
+		return err == nil && (st.Mode().IsRegular() || (st.IsDir() && strings.HasSuffix(strings.ToLower(f), ".gdb")))
+	}
+	if i := strings.Index(path, "|"); i > 0 && exists(path[:i]) {
+		layer = "LAYER"
+		for _, opt := range strings.Split(path[i+1:], "|") {
+			if name, found := strings.CutPrefix(opt, "layername="); found && name != "" {
+				layer = shellArg(name)
+			}
+		}
+		return path[:i], layer, true
+	}
+	if i := strings.LastIndex(path, ":"); i > 0 && i < len(path)-1 && exists(path[:i]) {
+		return path[:i], shellArg(path[i+1:]), true
+	}
+	return "", "", false
+}
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -264,6 +350,13 @@ func mustExist(what, path string) error {
 		if gdalSubdataset.MatchString(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s is a GDAL subdataset name, not a file; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 				"extract it into a file of its own (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
+		}
+		if WindowsPath(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, BackslashAdvice(path)))
+		}
+		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
+			return fault.BadInput(fmt.Errorf("%s: %s names a layer inside the path (as a GIS shows a layer's source); areasweep takes a file and uses its first layer of polygons: "+
+				"save that layer alone and give its file (e.g. ogr2ogr OUT.gpkg %s %s; ogrinfo %s lists the layers)", what, path, shellArg(file), layer, shellArg(file)))
 		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
@@ -365,6 +458,12 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	if err != nil {
 		return nil, nil, nil, fault.BadInput(err)
 	}
+	if w := taxaWarning(o.Occurrences, recs); w != "" {
+		s.warn(w)
+	}
+	if w := zeroWarning(o.Occurrences, recs, geographic); w != "" {
+		s.warn(w)
+	}
 	s.rawDegrees = !geographic
 	lons, lats = make([]float64, len(recs)), make([]float64, len(recs))
 	for i, r := range recs {
@@ -380,6 +479,86 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 		}
 	}
 	return lons, lats, recs, nil
+}
+
+// taxaWarning says, when the table's species column (inputs.TaxonNames)
+// names more than one taxon, that every line is scored as one species:
+// a portal's export of a genus, or of several species, scored as is
+// mixes their records. "" otherwise.
+func taxaWarning(path string, recs []inputs.Record) string {
+	count := map[string]int{}
+	for _, r := range recs {
+		if r.Taxon != "" {
+			count[r.Taxon]++
+		}
+	}
+	if len(count) < 2 {
+		return ""
+	}
+	names := make([]string, 0, len(count))
+	for n := range count {
+		names = append(names, n)
+	}
+	slices.SortFunc(names, func(a, b string) int {
+		if count[a] != count[b] {
+			return count[b] - count[a]
+		}
+		return strings.Compare(a, b)
+	})
+	var list []string
+	for i, n := range names {
+		if i == 5 {
+			list = append(list, fmt.Sprintf("and %d more", len(names)-5))
+			break
+		}
+		lines := "lines"
+		if count[n] == 1 {
+			lines = "line"
+		}
+		// A name in Latin-1 (a table not saved as UTF-8) is shown as
+		// results.json holds it, not as raw bytes on the terminal.
+		name := strings.ToValidUTF8(n, "\uFFFD")
+		if len(name) > 60 {
+			cut := 60
+			for cut > 0 && !utf8.RuneStart(name[cut]) {
+				cut--
+			}
+			name = name[:cut] + "..."
+		}
+		list = append(list, fmt.Sprintf("%s on %d %s", name, count[n], lines))
+	}
+	return fmt.Sprintf("occurrences: the species column of %s names %d taxa (%s); areasweep scores every line of the table as one species (it has no species filter): "+
+		"unless they are names of one species (its subspecies or synonyms), keep only the lines of the modelled species", path, len(names), strings.Join(list, ", "))
+}
+
+// zeroWarning names the records at longitude 0 and latitude 0 exactly
+// (in degrees), the placeholder that exports and databases hold for a
+// missing coordinate (a portal flags them as zero coordinates): they are
+// scored wherever a model has data there. "" when there are none.
+func zeroWarning(path string, recs []inputs.Record, geographic bool) string {
+	if !geographic {
+		return ""
+	}
+	var lines []string
+	n := 0
+	for _, r := range recs {
+		if r.X == 0 && r.Y == 0 {
+			if n++; n <= 10 {
+				lines = append(lines, strconv.Itoa(r.Line))
+			}
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	more, word := "", "lines"
+	if n > 10 {
+		more = fmt.Sprintf(" and %d more", n-10)
+	} else if n == 1 {
+		word = "line"
+	}
+	return fmt.Sprintf("occurrences: %d record(s) of %s lie at longitude 0, latitude 0 exactly (%s %s%s), where exports put records whose coordinates are missing; "+
+		"they are used like any other (scored where the models have data there): delete them unless the species was recorded there", n, path, word, strings.Join(lines, ", "), more)
 }
 
 // readOccurrences reads the occurrence table. One given as a pipe (a
@@ -620,11 +799,36 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
 		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
 			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
+		} else if n := swappedOnGrid(s.points, s.grid); s.grid.Geographic && 2*n >= len(s.points) && n > 0 {
+			// Longitudes and latitudes both in range, in each other's
+			// columns: the range check cannot see it.
+			msg += fmt.Sprintf("; with longitude and latitude swapped, %d of the %d points would lie on it: the table's longitude and latitude columns probably hold each other's values (rename or swap them)", n, len(s.points))
 		} else {
 			msg += "; check that the points and the raster cover the same area"
 		}
 	}
 	return errors.New(msg)
+}
+
+// swappedOnGrid counts the points that would lie on the latitude-longitude
+// grid g with their longitude and latitude swapped (longitudes taken
+// modulo 360 degrees).
+func swappedOnGrid(pts []report.Point, g *extent.Grid) int {
+	gt := g.GeoTransform
+	west, east := gt[0], gt[0]+float64(g.Width)*gt[1]
+	north, south := gt[3], gt[3]+float64(g.Height)*gt[5]
+	n := 0
+	for _, p := range pts {
+		lon, lat := p.Lat, p.Lon
+		if lat < south || lat >= north {
+			continue
+		}
+		lon = west + math.Mod(math.Mod(lon-west, 360)+360, 360)
+		if lon < east {
+			n++
+		}
+	}
+	return n
 }
 
 // explainCells is the most cells noTestPoint reads to tell a raster of
