@@ -1,8 +1,10 @@
 package nullmodel
 
 import (
+	"cmp"
 	"math"
 	"math/bits"
+	"slices"
 	"sync"
 
 	"areasweep/extent/geodesy"
@@ -472,6 +474,24 @@ type chordSite struct {
 	gg float64 // (cc - rho - 1)^2 when cc - rho - 1 > 0, else -Inf
 }
 
+// sortChordSites orders sites by increasing chord cc, sites of equal
+// chord in their order in the list (a stable sort: the order an insertion
+// sort gives). The list holds every candidate of a super-tile: a few
+// usually, sorted by insertion, but thousands near dense training points,
+// where the insertion sort's n^2/4 swaps per super-tile made most of the
+// pass; a longer list takes a stable sort's O(n log^2 n) steps.
+func sortChordSites(s []chordSite) {
+	if len(s) > 32 {
+		slices.SortStableFunc(s, func(a, b chordSite) int { return cmp.Compare(a.cc, b.cc) })
+		return
+	}
+	for i := 1; i < len(s); i++ {
+		for j := i; j > 0 && s[j].cc < s[j-1].cc; j-- {
+			s[j], s[j-1] = s[j-1], s[j]
+		}
+	}
+}
+
 // set sets the bracket of block cell i to [l, h] (negated when b.neg).
 func (b *bracketer) set(i int, l, h float64) {
 	if b.neg {
@@ -742,11 +762,7 @@ func (b *bracketer) chords(y1, y2, x1, x2 int, clat, clon, rho float64) bool {
 		p := b.ll.sites[k]
 		b.csites = append(b.csites, chordSite{p: p, cc: dist3(pc, p)})
 	}
-	for i := 1; i < len(b.csites); i++ {
-		for j := i; j > 0 && b.csites[j].cc < b.csites[j-1].cc; j-- {
-			b.csites[j], b.csites[j-1] = b.csites[j-1], b.csites[j]
-		}
-	}
+	sortChordSites(b.csites)
 	// A site q is farther than the first site (P_0, the nearest to the
 	// centre c) from every cell p of the super-tile when
 	//

@@ -687,6 +687,10 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	r := &passRun{p: p, g: g, layout: layout, opt: opt, nx: (p.width + p.blockW - 1) / p.blockW}
 	r.first, r.end, r.rows = r.blockRange()
 	r.bands = newBands(fam, groups, p.width, r.nx, p.blockH, r.rows)
+	// No more workers than blocks: each holds a block's buffer, hundreds
+	// of MB for a raster stored as one strip, and one with no block to
+	// take would hold it for nothing.
+	workers = max(min(workers, r.end-r.first), 1)
 	parts := make([]partial, workers)
 	doneBlocks := make(chan struct{}, workers)
 	var wg sync.WaitGroup

@@ -2,9 +2,11 @@ package pipeline
 
 import (
 	"fmt"
+	"math"
 	"time"
 
 	"areasweep/cmd/internal/pass"
+	"areasweep/extent"
 	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
 	"areasweep/extent/vocab"
@@ -30,11 +32,7 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		s.warn("no training point is scored, so the distance-only null cannot be computed")
 		return nil, nil
 	}
-	lats := make([]float64, len(train))
-	lons := make([]float64, len(train))
-	for j, p := range train {
-		lats[j], lons[j] = p.Lat, p.Lon
-	}
+	lats, lons := nullSites(train)
 	ix, err := geodesy.NewIndex(lats, lons)
 	if err != nil {
 		return nil, fmt.Errorf("distance-only null: %w", err)
@@ -53,6 +51,26 @@ func (s *Study) planDistanceNull(i int) (*Plan, error) {
 		return nil, err
 	}
 	return p, nil
+}
+
+// nullSites returns the coordinates of the distance-only null's sites:
+// the training points, each place once (the first point there), in their
+// order. Points at one place (--no-thin keeps them all) give every cell
+// the same nearest distance as one of them would, but each copy is a
+// separate candidate site: above nullmodel's 16 candidates a super-tile
+// is computed cell by cell, each cell measuring every copy, which made
+// 20 copies of one point take 17 s on 800,000 cells instead of 0.4 s.
+func nullSites(train []extent.LonLat) (lats, lons []float64) {
+	seen := make(map[[2]uint64]bool, len(train))
+	for _, p := range train {
+		k := [2]uint64{math.Float64bits(p.Lat), math.Float64bits(p.Lon)}
+		if seen[k] {
+			continue
+		}
+		seen[k] = true
+		lats, lons = append(lats, p.Lat), append(lons, p.Lon)
+	}
+	return lats, lons
 }
 
 // sortingBiases computes every scored extent's spatial sorting bias: the
