@@ -282,6 +282,13 @@ func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 // holdsPolygon reports whether a feature of l is a polygon area (as
 // checkFeatureTypes takes it).
 func holdsPolygon(l godal.Layer) bool {
+	return anyGeometry(l, func(g *godal.Geometry) bool { return polygonProblem(g) == "" })
+}
+
+// anyGeometry reports whether the geometry of some feature of l (one
+// with a geometry) satisfies is; it reads l from its start and leaves it
+// there.
+func anyGeometry(l godal.Layer, is func(*godal.Geometry) bool) bool {
 	l.ResetReading()
 	defer l.ResetReading()
 	for {
@@ -291,7 +298,7 @@ func holdsPolygon(l godal.Layer) bool {
 		}
 		ok := false
 		if g := f.Geometry(); !noGeometry(g) {
-			ok = polygonProblem(g) == ""
+			ok = is(g)
 		}
 		f.Close()
 		if ok {
@@ -861,24 +868,11 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 // for the curve types), which the plane, linear reading of shapeOf does
 // not take.
 func needsFlattening(layer godal.Layer) bool {
-	layer.ResetReading()
-	defer layer.ResetReading()
-	for {
-		f := layer.NextFeature()
-		if f == nil {
-			return false
-		}
-		flat := true
-		if g := f.Geometry(); !noGeometry(g) {
-			t := uint32(g.Type())
-			base := (t & 0x7fffffff) % 1000
-			flat = t&0x80000000 == 0 && t&0x7fffffff < 1000 && (base < 8 || base > 12)
-		}
-		f.Close()
-		if !flat {
-			return true
-		}
-	}
+	return anyGeometry(layer, func(g *godal.Geometry) bool {
+		t := uint32(g.Type())
+		base := (t & 0x7fffffff) % 1000
+		return t&0x80000000 != 0 || t&0x7fffffff >= 1000 || (base >= 8 && base <= 12)
+	})
 }
 
 // polygonProblem says what makes g unusable as an area, or "".

@@ -361,19 +361,7 @@ func TestRunReproducible(t *testing.T) {
 	}
 	// Every other file too (run.log times the phases): methods.md, the
 	// figures in every format, omitted_points.gpkg, extents.tif.
-	files := func(dir string) map[string][]byte {
-		m := map[string][]byte{}
-		filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
-			if err != nil || d.IsDir() || d.Name() == "run.log" {
-				return err
-			}
-			rel, _ := filepath.Rel(dir, p)
-			m[rel], _ = os.ReadFile(p)
-			return nil
-		})
-		return m
-	}
-	f1, f2 := files(filepath.Join(s.dir, "out1")), files(filepath.Join(s.dir, "out2"))
+	f1, f2 := outputFiles(filepath.Join(s.dir, "out1")), outputFiles(filepath.Join(s.dir, "out2"))
 	for _, want := range []string{"methods.md", "omitted_points.gpkg", "extents.tif", filepath.Join("figures", "roc_curves.pdf"), filepath.Join("figures", "extent_maps.png")} {
 		if len(f1[want]) == 0 {
 			t.Errorf("%s missing or empty", want)
@@ -1002,4 +990,19 @@ func validGeoPackages(t *testing.T, paths ...string) {
 			}
 		}
 	})
+}
+
+// outputFiles returns the content of every file under dir but run.log
+// (which times the phases), by path relative to dir.
+func outputFiles(dir string) map[string][]byte {
+	m := map[string][]byte{}
+	filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+		if err != nil || d.IsDir() || d.Name() == "run.log" {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		m[rel], _ = os.ReadFile(p)
+		return nil
+	})
+	return m
 }

@@ -33,23 +33,11 @@ import (
 // The expected outputs are those of the same run without the variable.
 func TestUserGDALEnvironment(t *testing.T) {
 	s := newSmallStudy(t)
-	files := func(dir string) map[string][]byte {
-		m := map[string][]byte{}
-		filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
-			if err != nil || d.IsDir() || d.Name() == "run.log" {
-				return err
-			}
-			rel, _ := filepath.Rel(dir, p)
-			m[rel], _ = os.ReadFile(p)
-			return nil
-		})
-		return m
-	}
 	ref := filepath.Join(s.dir, "ref")
 	if _, se, code := runBin(t, s.args(ref)...); code != 0 {
 		t.Fatalf("reference run: exit %d: %s", code, se)
 	}
-	want := files(ref)
+	want := outputFiles(ref)
 	for _, tc := range []struct{ name, key, value string }{
 		{"debug", "CPL_DEBUG", "ON"},
 		{"wal", "OGR_SQLITE_JOURNAL", "WAL"},
@@ -76,7 +64,7 @@ func TestUserGDALEnvironment(t *testing.T) {
 					break
 				}
 			}
-			got := files(out)
+			got := outputFiles(out)
 			for name, b := range want {
 				if !bytes.Equal(got[name], b) {
 					t.Errorf("%s=%s: %s differs from the run without it", tc.key, tc.value, name)
