@@ -14,10 +14,7 @@ import (
 	"areasweep/cmd/internal/batchrun"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
-	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/settings"
-	"areasweep/extent"
-	"areasweep/report"
 )
 
 // BatchOptions runs every study of a study table: the command's streams,
@@ -177,24 +174,6 @@ func validateSlurm(o *batchrun.SlurmOptions) error {
 // batchRun runs the batch (package batchrun) with the command's streams;
 // while its studies run, a stop signal's message says what they leave.
 func batchRun(ctx context.Context, o *BatchOptions) error {
-	if err := outdir.CheckUmask(); err != nil {
-		return err
-	}
-	if !o.SummaryOnly && !o.Slurm.Enabled {
-		// Every study needs GDAL's drivers and PROJ: refused once, before
-		// anything runs, rather than each study failing in their words.
-		if err := extent.CheckSetup(); err != nil {
-			return fault.BadInput(err)
-		}
-	}
-	if !o.Slurm.Enabled {
-		// The studies' figures and the summary's need the temporary
-		// folder: each study failed on it, and a summary of failures was
-		// written (exit 1 all the same, as for run).
-		if err := report.CheckTempDir(); err != nil {
-			return fmt.Errorf("%w; no study ran", err)
-		}
-	}
 	return batchrun.Run(ctx, &o.Options, batchrun.IO{Out: o.IO.Out, ErrOut: o.IO.ErrOut, StopNote: swapStoppedNote})
 }
 

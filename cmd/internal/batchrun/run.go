@@ -12,6 +12,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/slurm"
+	"areasweep/extent"
 	"areasweep/report"
 	"areasweep/report/outfile"
 )
@@ -21,6 +22,9 @@ import (
 // instead. Its error is classed for the exit status (package fault): a bad
 // table or --out, nothing ran; a failed study; an internal error.
 func Run(ctx context.Context, o *Options, w IO) error {
+	if err := preflight(o); err != nil {
+		return err
+	}
 	studies, err := resolve(o)
 	if err != nil {
 		return fault.BadInput(err)
@@ -40,6 +44,28 @@ func Run(ctx context.Context, o *Options, w IO) error {
 		return runSlurm(ctx, o, w.Out, studies)
 	}
 	return runLocal(ctx, o, w, studies)
+}
+
+// preflight refuses, once and before the table is read, what would fail
+// every study: a umask that takes the owner's own permissions, a GDAL or
+// PROJ the environment left unable to run (not needed to write a summary
+// or a SLURM plan), and a temporary folder the studies' figures and the
+// summary's cannot use (exit 1, as for run).
+func preflight(o *Options) error {
+	if err := outdir.CheckUmask(); err != nil {
+		return err
+	}
+	if !o.SummaryOnly && !o.Slurm.Enabled {
+		if err := extent.CheckSetup(); err != nil {
+			return fault.BadInput(err)
+		}
+	}
+	if !o.Slurm.Enabled {
+		if err := report.CheckTempDir(); err != nil {
+			return fmt.Errorf("%w; no study ran", err)
+		}
+	}
+	return nil
 }
 
 // runLocal runs the studies on this machine, records each study's
