@@ -13,6 +13,6 @@ test:
 bench: microbench build
 	$(GO) run ./cmd/sweepbench $(BENCHFLAGS)
 microbench:
-	$(GO) test -run '^$$' -bench . -benchmem ./metrics/ ./extent/... ./cmd/internal/pass/ ./cmd/internal/shardfile/
+	$(GO) test -run '^$$' -bench . -benchmem ./metrics/ ./extent/... ./cmd/internal/pass/ ./cmd/internal/shardfile/ ./cmd/internal/inputs/ ./report/
 demo:
 	scripts/demo.sh

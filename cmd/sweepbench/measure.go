@@ -85,8 +85,8 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 			}
 			rows = append(rows, r)
 			cps := float64(r.cells) * float64(len(s.models)) / r.run
-			fmt.Printf("%-12d %-8s %-9.2f %-9.2f %-7.1f %-11.2f %-7.1f %-10.0f %-12.3g %-9.2f %-9.2f %-9.1f\n",
-				r.cells, extentsLabel(r), r.bare, r.run, r.run/r.bare, r.baseline, r.baseline/r.run, r.runRSS, cps, r.bareCPU, r.runCPU, r.runCPU/r.bareCPU)
+			fmt.Printf("%-12d %-8s %-9.2f %-9.2f %-7.1f %-11s %-7s %-10.0f %-12.3g %-9.2f %-9.2f %-9.1f\n",
+				r.cells, extentsLabel(r), r.bare, r.run, r.run/r.bare, orSkipped(r.baseline, 2), orSkipped(r.baseline/r.run, 1), r.runRSS, cps, r.bareCPU, r.runCPU, r.runCPU/r.bareCPU)
 			fmt.Printf("  phases (run.log): %s\n", r.phases)
 		}
 	}
@@ -396,4 +396,13 @@ func phases(path string) string {
 		out = append(out, fmt.Sprintf("%s %.2f", short.Replace(name), sec))
 	}
 	return strings.Join(out, "; ")
+}
+
+// orSkipped formats v with prec decimals, or "skipped" when it is NaN (the
+// baseline, not run above -baseline-max-cells).
+func orSkipped(v float64, prec int) string {
+	if math.IsNaN(v) {
+		return "skipped"
+	}
+	return strconv.FormatFloat(v, 'f', prec, 64)
 }
