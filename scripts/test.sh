@@ -2,7 +2,8 @@
 # The project's tests: installs what they need if missing, regenerates the
 # golden values from the reference libraries (scikit-learn, SciPy, R's pROC,
 # PROJ's geod) and fails if they differ from the committed ones, then runs
-# gofmt, go vet and every Go test, the end-to-end and browser tests included.
+# gofmt, go vet and every Go test, the end-to-end and browser tests included,
+# then the race detector on the packages that run work concurrently.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 [ -x /usr/local/go/bin/go ] && export PATH="/usr/local/go/bin:$PATH"
@@ -34,3 +35,10 @@ export AREASWEEP_ARTEFACTS="$PWD/test-artefacts"
 mkdir -p "$AREASWEEP_ARTEFACTS"
 go test -count=1 ./...
 echo "test artefacts: $AREASWEEP_ARTEFACTS"
+echo "== go test -race (the packages whose work runs on several goroutines)"
+# Outputs must be byte-identical on any number of cores: the race detector
+# checks the packages that share work between goroutines (the streaming
+# pass and the null's field, the family build, the pipeline's stages, the
+# batch scheduler, the output folder's guard, the shard files). -short
+# keeps it to about a minute and a half on 2 cores.
+go test -race -short -count=1 ./cmd/internal/pass/ ./extent/nullmodel/ ./extent/ ./cmd/internal/pipeline/ ./cmd/internal/batchrun/ ./cmd/internal/batch/ ./cmd/internal/outdir/ ./cmd/internal/shardfile/
