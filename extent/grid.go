@@ -213,6 +213,10 @@ var (
 	ErrRotated   = errors.New("extent: raster geotransform is rotated; warp it to a north-up grid first (gdalwarp)")
 	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude")
 	ErrGridsDiff = errors.New("extent: model rasters are not on one grid")
+	// ErrCRSMissing is ErrNoCRS for a raster that holds no CRS at all (not
+	// an undefined one, nor one PROJ cannot read): it has ErrNoCRS's
+	// words, and errors.Is finds both.
+	ErrCRSMissing = fmt.Errorf("%w", ErrNoCRS)
 )
 
 // Grid is the model raster grid: size, north-up geotransform and CRS. Cell
@@ -329,11 +333,11 @@ func OpenGrid(path string) (*Grid, error) {
 	}
 	sr := ds.SpatialRef()
 	if sr == nil {
-		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+		return nil, fmt.Errorf("%s: %w", path, ErrCRSMissing)
 	}
 	wkt, err := sr.WKT()
 	if err != nil || wkt == "" {
-		return nil, fmt.Errorf("%s: %w", path, ErrNoCRS)
+		return nil, fmt.Errorf("%s: %w", path, ErrCRSMissing)
 	}
 	if undefinedCRS(wkt) {
 		return nil, fmt.Errorf("%s: its CRS is undefined (%s): %w", path, crsName(wkt), ErrNoCRS)

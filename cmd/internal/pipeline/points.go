@@ -120,7 +120,7 @@ func (s *Study) openGrid() error {
 				}
 				return fault.BadInput(fmt.Errorf("%s: %s has no coordinate reference system; %s", m.who(), m.Path, hint))
 			}
-			if err.Error() == m.Path+": "+extent.ErrNoCRS.Error() {
+			if errors.Is(err, extent.ErrCRSMissing) {
 				// A GeoTIFF without a CRS (not an undefined one): GDAL reads no .prj beside it (a desktop GIS
 				// export's .tif, .tfw and .prj), so name the one there is.
 				stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
@@ -187,7 +187,7 @@ func (s *Study) openGrid() error {
 // (-te) and cell size (-tr), bilinear, and its CRS when crs is set (as
 // EPSG:N when it has that code, else named by the first model).
 func onGridCommand(g *extent.Grid, first, path string, crs bool) string {
-	gt := g.GeoTransform
+	gt, b := g.GeoTransform, g.Bounds() // west, south, east, north
 	num := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 	t := ""
 	if crs {
@@ -199,7 +199,7 @@ func onGridCommand(g *extent.Grid, first, path string, crs bool) string {
 	}
 	out := strings.TrimSuffix(path, filepath.Ext(path)) + "_on_grid.tif"
 	return fmt.Sprintf("gdalwarp%s -te %s %s %s %s -tr %s %s -r bilinear %s %s (-r near for a model of classes), and give %s",
-		t, num(gt[0]), num(gt[3]+float64(g.Height)*gt[5]), num(gt[0]+float64(g.Width)*gt[1]), num(gt[3]),
+		t, num(b[0]), num(b[1]), num(b[2]), num(b[3]),
 		num(math.Abs(gt[1])), num(math.Abs(gt[5])), shellArg(path), shellArg(out), out)
 }
 
@@ -814,9 +814,8 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 // grid g with their longitude and latitude swapped (longitudes taken
 // modulo 360 degrees).
 func swappedOnGrid(pts []report.Point, g *extent.Grid) int {
-	gt := g.GeoTransform
-	west, east := gt[0], gt[0]+float64(g.Width)*gt[1]
-	north, south := gt[3], gt[3]+float64(g.Height)*gt[5]
+	b := g.Bounds()
+	west, south, east, north := b[0], b[1], b[2], b[3]
 	n := 0
 	for _, p := range pts {
 		lon, lat := p.Lat, p.Lon

@@ -3,11 +3,14 @@ package scenario
 import (
 	"errors"
 	"fmt"
+	"os"
 	"slices"
 	"strconv"
 	"strings"
 
 	"github.com/airbusgeo/godal"
+
+	"areasweep/report/outfile"
 )
 
 // epsgWGS84 is the EPSG code of geographic WGS 84 (longitude/latitude).
@@ -97,7 +100,9 @@ func ringWKT(ring []pt) string {
 }
 
 // writePolygons writes feats to a new GeoPackage at path, in one EPSG:4326
-// polygon layer with the given attribute columns.
+// polygon layer with the given attribute columns, mode 0666 less the
+// umask, as every file areasweep writes (SQLite makes it 0644 less the
+// umask).
 func writePolygons(path, layer string, defs []fieldDef, feats []polyFeature) (err error) {
 	ds, err := godal.CreateVector(godal.GeoPackage, path)
 	if err != nil {
@@ -106,6 +111,11 @@ func writePolygons(path, layer string, defs []fieldDef, feats []polyFeature) (er
 	defer func() {
 		if cerr := ds.Close(); cerr != nil && err == nil {
 			err = fmt.Errorf("scenario: close GeoPackage %s: %w", path, cerr)
+		}
+		if err == nil {
+			if cerr := os.Chmod(path, 0o666&^outfile.Umask); cerr != nil {
+				err = fmt.Errorf("scenario: %w", cerr)
+			}
 		}
 	}()
 	sr, err := godal.NewSpatialRefFromEPSG(epsgWGS84)

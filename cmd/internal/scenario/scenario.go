@@ -12,7 +12,6 @@ import (
 
 	"areasweep/extent"
 	"areasweep/extent/vocab"
-	"areasweep/report/outfile"
 
 	"github.com/airbusgeo/godal"
 )
@@ -140,12 +139,6 @@ func Write(dir string, seed uint64) (Files, error) {
 	defs := []fieldDef{{ecoregionField, godal.FTInt}, {"unit_name", godal.FTString}}
 	if err := writePolygons(f.Ecoregions, "ecoregions", defs, units); err != nil {
 		return Files{}, err
-	}
-	for _, p := range []string{f.Region, f.Ecoregions} {
-		// SQLite made them 0644 less the umask.
-		if err := os.Chmod(p, 0o666&^outfile.Umask); err != nil {
-			return Files{}, fmt.Errorf("scenario: %w", err)
-		}
 	}
 	if err := os.WriteFile(f.Study, studyYAML(seed), 0o666); err != nil {
 		return Files{}, fmt.Errorf("scenario: write study file: %w", err)
