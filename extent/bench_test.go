@@ -32,10 +32,7 @@ func BenchmarkBuild(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		v := NewValid(g.Cells())
-		for i := 0; i < g.Cells(); i++ {
-			v.Set(i)
-		}
+		v := NewValidFunc(g.Width, g.Height, func(int) bool { return true })
 		spec := Spec{Region: region, RegionBuffersKm: []float64{-50, 100, 250, 500}, Train: pts, PointBuffersKm: []float64{25, 50, 100}, HullBuffersKm: []float64{0}}
 		b.Run(fmt.Sprintf("cells=%d", g.Cells()), func(b *testing.B) {
 			b.ReportAllocs()

@@ -15,7 +15,7 @@ import (
 // builder accumulates members while the family is built.
 type builder struct {
 	g     *Grid
-	valid Valid
+	valid *Valid
 	f     *Family
 }
 
@@ -47,7 +47,7 @@ func (b *builder) fillRuns(k int, mp orb.MultiPolygon) {
 // pass builds with nil and calls Clip afterwards; with nil, cells, points,
 // statuses and chains are found but areas (AreaKm2, Share) are left 0 for
 // Clip to measure.
-func Build(g *Grid, valid Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
+func Build(g *Grid, valid *Valid, spec Spec, trainCells, testCells []int) (*Family, error) {
 	f := &Family{Grid: g, Chains: map[string][]int{}}
 	b := &builder{g: g, valid: valid, f: f}
 	if spec.Region == "" {

@@ -3,7 +3,6 @@ package extent
 import (
 	"fmt"
 	"sort"
-	"sync/atomic"
 
 	"areasweep/extent/vocab"
 )
@@ -89,26 +88,6 @@ type Family struct {
 	Base     Shape
 	cells    []cellRuns // per member
 }
-
-// Valid is a per-cell bitset of the cells with data in the reference model.
-type Valid []uint64
-
-// NewValid returns an empty bitset for n cells.
-func NewValid(n int) Valid { return make(Valid, (n+63)/64) }
-
-// Set marks cell i valid.
-func (v Valid) Set(i int) { v[i>>6] |= 1 << (uint(i) & 63) }
-
-// Has reports whether cell i is valid. A nil Valid holds every cell.
-func (v Valid) Has(i int) bool { return v == nil || v[i>>6]>>(uint(i)&63)&1 == 1 }
-
-// SetAtomic marks cell i valid; safe when goroutines mark cells that share
-// a word.
-func (v Valid) SetAtomic(i int) { atomic.OrUint64(&v[i>>6], 1<<(uint(i)&63)) }
-
-// OrAtomic sets the bits of word (cells 64*word to 64*word+63 from the
-// least significant bit) atomically.
-func (v Valid) OrAtomic(word int, bits uint64) { atomic.OrUint64(&v[word], bits) }
 
 // nested reports whether every cell of member a is in member b.
 func (f *Family) nested(a, b int) bool {

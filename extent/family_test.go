@@ -14,17 +14,13 @@ import (
 )
 
 // geoGrid makes a latitude-longitude grid with every cell valid.
-func geoGrid(t *testing.T, west, north, step float64, w, h int) (*Grid, Valid) {
+func geoGrid(t *testing.T, west, north, step float64, w, h int) (*Grid, *Valid) {
 	t.Helper()
 	g, err := NewGrid(w, h, [6]float64{west, step, 0, north, 0, -step}, "EPSG:4326")
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := NewValid(w * h)
-	for i := 0; i < w*h; i++ {
-		v.Set(i)
-	}
-	return g, v
+	return g, NewValidFunc(w, h, func(int) bool { return true })
 }
 
 // writeGeoJSON writes polygons (lon/lat rings) as a GeoJSON file with an
@@ -593,10 +589,7 @@ func TestPolarCapProjected(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := NewValid(side * side)
-	for i := range side * side {
-		v.Set(i)
-	}
+	v := NewValidFunc(side, side, func(int) bool { return true })
 	f, err := Build(g, v, Spec{Region: cap, RegionBuffersKm: []float64{-100}}, nil, nil)
 	if err != nil {
 		t.Fatal(err)
@@ -778,12 +771,9 @@ func TestClipEqualsBuildOnValid(t *testing.T) {
 	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}})
 	same := writeGeoJSON(t, dir, "s.geojson", []string{"s"}, [][][2]float64{{{1, 1}, {3.6, 1}, {3.6, 3}, {1, 3}, {1, 1}}})
 	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
-	valid := NewValid(g.Cells())
-	for i := 0; i < g.Cells(); i++ {
-		if i%g.Width < 30 { // columns east of 3 E have no data
-			valid.Set(i)
-		}
-	}
+	valid := NewValidFunc(g.Width, g.Height, func(i int) bool {
+		return i%g.Width < 30 // columns east of 3 E have no data
+	})
 	train := []LonLat{{1.5, 1.5}, {2.5, 2.2}, {1.2, 2.8}}
 	trainCells := []int{25*40 + 15, 18*40 + 25, 12*40 + 12}
 	spec := Spec{Region: region, RegionBuffersKm: []float64{30}, Train: train, PointBuffersKm: []float64{40}, Extra: []Named{{"wide", same}}}

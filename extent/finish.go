@@ -15,7 +15,7 @@ import (
 // cells, areas, shares and points inside, members that became empty or
 // equal to another, and chain nesting. Members already empty or duplicate
 // stay so.
-func (f *Family) Clip(valid Valid, trainCells, testCells []int) {
+func (f *Family) Clip(valid *Valid, trainCells, testCells []int) {
 	for k := range f.Members {
 		m := &f.Members[k]
 		m.Cells, m.AreaKm2, m.Share, m.TrainPoints, m.TestPoints = 0, 0, 0, 0, 0
@@ -83,7 +83,7 @@ func (b *builder) measure() []int64 {
 				rows := f.cells[k].rows
 				for row, r := range rows {
 					if b.valid != nil && len(r) > 0 {
-						r = clipValid(nil, r, b.valid, row*g.Width)
+						r = b.valid.clip(nil, r, row)
 						rows[row] = r
 					}
 					cells[k] += r.cells()
@@ -252,12 +252,18 @@ func (b *builder) keepChains() {
 func (b *builder) validArea() float64 {
 	g := b.g
 	total := 0.0
-	areas := make([]float64, g.Width)
+	var areas []float64
+	var runs []int32
 	for row := 0; row < g.Height; row++ {
-		areas = g.RowAreas(row, areas)
-		base := row * g.Width
-		for c, a := range areas {
-			if b.valid.Has(base + c) {
+		runs = runs[:0]
+		if b.valid == nil {
+			runs = append(runs, 0, int32(g.Width))
+		} else {
+			runs = b.valid.Row(row, runs)
+		}
+		for i := 0; i < len(runs); i += 2 {
+			areas = g.RowAreasRange(row, int(runs[i]), int(runs[i+1]), areas)
+			for _, a := range areas {
 				total += a
 			}
 		}

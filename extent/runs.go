@@ -2,7 +2,6 @@ package extent
 
 import (
 	"math"
-	"math/bits"
 	"slices"
 )
 
@@ -153,41 +152,6 @@ func subset(a, b rowRuns) bool {
 		}
 	}
 	return true
-}
-
-// clipValid appends the cells of r that are set in valid (cell index
-// base+c) to dst, scanning the bitset a word at a time.
-func clipValid(dst, r rowRuns, valid Valid, base int) rowRuns {
-	for i := 0; i < len(r); i += 2 {
-		c, end := int(r[i]), int(r[i+1])
-		for c < end {
-			// Skip invalid cells.
-			idx := base + c
-			w := valid[idx>>6] >> (uint(idx) & 63)
-			if w == 0 {
-				c += 64 - idx&63
-				continue
-			}
-			if w&1 == 0 {
-				c += bits.TrailingZeros64(w)
-				continue
-			}
-			// A run of valid cells starts at c.
-			start := c
-			for c < end {
-				idx = base + c
-				w = ^valid[idx>>6] >> (uint(idx) & 63)
-				if w == 0 {
-					c += 64 - idx&63
-					continue
-				}
-				c += bits.TrailingZeros64(w)
-				break
-			}
-			dst = append(dst, int32(start), int32(min(c, end)))
-		}
-	}
-	return dst
 }
 
 // NewFamilyFromRuns makes a family on g from members (Status as given) and

@@ -53,7 +53,7 @@ func randomRuns(rng *rand.Rand, w int) ([]int32, []bool) {
 }
 
 // TestRunOps checks canonical, union, intersect, minus, subset, has,
-// clipValid and Span against the same operations done cell by cell on
+// Valid.clip and Span against the same operations done cell by cell on
 // random rows (brute force, by construction).
 func TestRunOps(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
@@ -93,18 +93,27 @@ func TestRunOps(t *testing.T) {
 		if subset(a, b) != sup {
 			t.Fatalf("subset(%v, %v) = %v, want %v", a, b, subset(a, b), sup)
 		}
-		// clipValid with a bitset offset inside its words.
-		base := rng.IntN(200)
-		valid := NewValid(base + w)
-		want := make([]bool, w)
-		for c := 0; c < w; c++ {
-			if rng.IntN(3) > 0 || c > 70 && c < 140 {
-				valid.Set(base + c)
-				want[c] = ina[c]
+		// Valid.clip on a row held as runs (sparse) and on one held as
+		// a bitset (ragged), against the same cell by cell.
+		for _, dense := range []bool{false, true} {
+			want := make([]bool, w)
+			valid := NewValidFunc(w, 2, func(i int) bool {
+				c := i % w
+				in := c > 70 && c < 140
+				if dense {
+					in = in || rng.IntN(3) > 0
+				}
+				if in && i >= w {
+					want[c] = ina[c]
+				}
+				return in
+			})
+			if isBits := valid.rows[1].bits != nil; isBits != dense {
+				t.Fatalf("dense=%v: row held as a bitset = %v", dense, isBits)
 			}
-		}
-		if got := clipValid(nil, a, valid, base); !slices.Equal(got, runsOf(want)) {
-			t.Fatalf("clipValid(%v) = %v, want %v", a, got, runsOf(want))
+			if got := valid.clip(nil, a, 1); !slices.Equal(got, runsOf(want)) {
+				t.Fatalf("dense=%v: clip(%v) = %v, want %v", dense, a, got, runsOf(want))
+			}
 		}
 	}
 }

@@ -192,6 +192,9 @@ type workerState struct {
 	free     []*metrics.Shared // not in use, empty
 	dst      []*metrics.Accumulator
 
+	// The block's valid cells, when the pass records them (scoreBlock).
+	validRuns, validOff []int32
+
 	// rowW[row] is 1 + the weight of every cell of row on grids whose
 	// rows have one cell area (latitude-longitude and equal-area), 0 until
 	// computed; weights holds filled throughout its first wlen entries
@@ -566,8 +569,18 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 	ws.share(layout, accs)
 	x1 := b.x0 + b.w
 	bins := ws.bins[:b.w]
+	// With opt.Valid, row y's runs of valid cells are
+	// ws.validRuns[ws.validOff[y]:ws.validOff[y+1]].
+	var validRuns *[]int32
+	if opt.Valid != nil {
+		ws.validRuns, ws.validOff = ws.validRuns[:0], ws.validOff[:0]
+		validRuns = &ws.validRuns
+	}
 	for y := 0; y < b.h; y++ {
 		row := b.y0 + y
+		if validRuns != nil {
+			ws.validOff = append(ws.validOff, int32(len(ws.validRuns)))
+		}
 		vals := b.buf[y*b.w : (y+1)*b.w]
 		shown := vals
 		if b.shown != nil {
@@ -584,8 +597,11 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
-		locateSegments(layout, segs, bins, vals, weights, rowW, st, opt.Valid, row*g.Width+b.x0)
+		locateSegments(layout, segs, bins, vals, weights, rowW, st, validRuns, len(ws.validRuns), b.x0)
 		ws.addSegments(accs, segs, bins, vals, weights)
+	}
+	if validRuns != nil {
+		ws.validOff = append(ws.validOff, int32(len(ws.validRuns)))
 	}
 	// The shared sums into each of their members.
 	for _, sh := range ws.sigAcc {
@@ -617,11 +633,10 @@ func (pv *Preview) copyRow(row, x0 int, vals []float64) {
 // locateSegments locates the values of a block row's segments in the
 // layout's bins (bins), adds their cells to the statistics st (minimum,
 // maximum, the area at the minimum, the area; rowW the row's one cell
-// weight, or negative when its cells differ) and, with validCells, sets
-// the bits of the valid cells (base: the grid index of the row's first
-// cell in the block).
-func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, validCells extent.Valid, base int) {
-	vword, vbits := -1, uint64(0)
+// weight, or negative when its cells differ) and, with validRuns, appends
+// the runs of valid cells to it (its runs of this row begin at from; x0:
+// the grid column of the block's first cell).
+func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, validRuns *[]int32, from, x0 int) {
 	// The statistics in locals: st is written back once per row.
 	mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 	for j := 0; j < len(segs); {
@@ -638,23 +653,8 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 		if n == 0 {
 			continue
 		}
-		if validCells != nil {
-			// Bits are gathered per 64-bit word and set with one
-			// atomic OR per word (blocks of other workers may share
-			// the word at their edges).
-			for x, bin := range sb {
-				if bin < 0 {
-					continue
-				}
-				i := base + int(s.x0) + x
-				if i>>6 != vword {
-					if vbits != 0 {
-						validCells.OrAtomic(vword, vbits)
-					}
-					vword, vbits = i>>6, 0
-				}
-				vbits |= 1 << (uint(i) & 63)
-			}
+		if validRuns != nil {
+			*validRuns = appendValidRuns(*validRuns, from, sb, int32(x0+int(s.x0)))
 		}
 		segArea := int64(n) * rowW
 		if rowW < 0 {
@@ -680,9 +680,25 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 		area += segArea
 	}
 	st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
-	if vbits != 0 {
-		validCells.OrAtomic(vword, vbits)
+}
+
+// appendValidRuns appends to runs (this row's from runs[from:]) the runs
+// of cells with a bin (bins[x] >= 0) of a segment whose first cell is grid
+// column c0, joining a run to the row's last one when they meet (segments
+// of a row come in column order).
+func appendValidRuns(runs []int32, from int, bins []int32, c0 int32) []int32 {
+	for x := 0; x < len(bins); {
+		if bins[x] < 0 {
+			x++
+			continue
+		}
+		start := x
+		for x < len(bins) && bins[x] >= 0 {
+			x++
+		}
+		runs = appendCells(runs, from, c0+int32(start), c0+int32(x))
 	}
+	return runs
 }
 
 // addSegments adds a block row's segments (their bins, values and

@@ -151,10 +151,10 @@ func sameShare(t *testing.T, name string, got, want scoredShare) {
 	}
 }
 
-// bitsOf renders a bitset's bits as bytes, for comparison.
-func bitsOf(v extent.Valid) []byte {
+// bitsOf renders the cells of v as bytes (1: valid), for comparison.
+func bitsOf(v *extent.Valid) []byte {
 	var b []byte
-	for i := range len(v) * 64 {
+	for i := range v.Width() * v.Height() {
 		if v.Has(i) {
 			b = append(b, 1)
 		} else {
@@ -247,10 +247,8 @@ func TestKeptShardsMerge(t *testing.T) {
 			}
 		}
 		sum.stats.Merge(sh.stats)
+		addValid(t, sum.valid, sh.valid)
 		for c := 0; c < g.Cells(); c++ {
-			if sh.valid.Has(c) {
-				sum.valid.Set(c)
-			}
 			if !math.IsNaN(sh.vals[c]) {
 				sum.vals[c] = sh.vals[c]
 			}
@@ -365,5 +363,16 @@ func writeTypedRaster(t *testing.T, path string, w, h int, typ godal.DataType, v
 	}
 	if err := ds.Close(); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// addValid adds the cells of v to sum, row by row; a cell in both fails
+// the test.
+func addValid(t *testing.T, sum, v *extent.Valid) {
+	t.Helper()
+	for row := 0; row < v.Height(); row++ {
+		if err := sum.AddRow(row, v.Row(row, nil)); err != nil {
+			t.Fatal(err)
+		}
 	}
 }

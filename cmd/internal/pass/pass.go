@@ -494,9 +494,10 @@ func (r *Raster) Blocks() int {
 	return nx * ny
 }
 
-// ReadValid returns the bitset of cells with a valid value.
-func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (extent.Valid, error) {
-	v := extent.NewValid(g.Cells())
+// ReadValid returns the cells with a valid value.
+func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (*extent.Valid, error) {
+	v := extent.NewValid(g.Width, g.Height)
+	rec := newValidRec(v, r.width, r.blockW, r.blockH)
 	blocks := make(chan block)
 	free := make(chan []float64, 1)
 	st := r.band.Structure()
@@ -504,16 +505,20 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (exte
 	errc := make(chan error, 1)
 	go func() { errc <- r.each(blocks, free) }()
 	done, total := 0, r.Blocks()
+	var runs, off []int32
 	for b := range blocks {
 		r.decode(b.buf)
+		runs, off = runs[:0], off[:0]
 		for y := 0; y < b.h; y++ {
-			base := (b.y0+y)*g.Width + b.x0
+			from := len(runs)
+			off = append(off, int32(from))
 			for x := 0; x < b.w; x++ {
 				if r.valid(b.buf[y*b.w+x]) {
-					v.Set(base + x)
+					runs = appendCells(runs, from, int32(b.x0+x), int32(b.x0+x+1))
 				}
 			}
 		}
+		rec.add(b, runs, append(off, int32(len(runs))))
 		free <- b.buf
 		done++
 		if progress != nil {
@@ -614,10 +619,10 @@ type Options struct {
 	Progress func(done, total int)
 	// Preview, when set, receives the coarse copy of this raster.
 	Preview *Preview
-	// Valid, when set, receives a bit for every valid cell that belongs to
-	// some extent, so that the first model's pass also yields the cells the
-	// family is clipped to (no separate read).
-	Valid extent.Valid
+	// Valid, when set (empty, on the grid), receives every valid cell that
+	// belongs to some extent, so that the first model's pass also yields
+	// the cells the family is clipped to (no separate read).
+	Valid *extent.Valid
 	// Rows, when set, sees every row of every block that holds a cell of
 	// some member, once its values are known: the row, its first column,
 	// the values (NaN: no value) and the cells' integer area weights.
@@ -687,6 +692,9 @@ func score(p plan, g *extent.Grid, fam *extent.Family, groups [][]int, layout *m
 	r := &passRun{p: p, g: g, layout: layout, opt: opt, nx: (p.width + p.blockW - 1) / p.blockW}
 	r.first, r.end, r.rows = r.blockRange()
 	r.bands = newBands(fam, groups, p.width, r.nx, p.blockH, r.rows)
+	if opt.Valid != nil {
+		r.valid = newValidRec(opt.Valid, p.width, p.blockW, p.blockH)
+	}
 	// No more workers than blocks: each holds a block's buffer, hundreds
 	// of MB for a raster stored as one strip, and one with no block to
 	// take would hold it for nothing.
@@ -729,6 +737,7 @@ type passRun struct {
 	first, end int
 	rows       RowRange
 	bands      *bands
+	valid      *validRec // nil unless Options.Valid
 	next       atomic.Int64
 	failed     atomic.Bool
 }
@@ -830,6 +839,9 @@ func (r *passRun) block(i int, src Source, ws *workerState, accs []*metrics.Accu
 	}
 	if err := scoreBlock(r.g, r.layout, b, accs, st, ws, opt); err != nil {
 		return err
+	}
+	if r.valid != nil {
+		r.valid.add(b, ws.validRuns, ws.validOff)
 	}
 	r.bands.done(by, bd)
 	return nil

@@ -117,7 +117,7 @@ func TestScoreWorkersAgree(t *testing.T) {
 	var previews [][]float64
 	var encoded [][]byte
 	for _, workers := range []int{1, 3} {
-		valid := extent.NewValid(g.Cells())
+		valid := extent.NewValid(g.Width, g.Height)
 		pv := NewPreview(g, 50)
 		accs, st, err := r.Score(g, fam, layout, Options{Workers: workers, Valid: valid, Preview: pv})
 		if err != nil {

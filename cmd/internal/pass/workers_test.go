@@ -49,7 +49,7 @@ func TestScoreWorkersAtMostBlocks(t *testing.T) {
 			var opened atomic.Int32
 			p := plan{width: w, height: h, blockW: w, blockH: tc.blockH, decode: raster.decode,
 				open: func() (Source, error) { opened.Add(1); return memSource{w: w, vals: vals}, nil }}
-			valid := extent.NewValid(g.Cells())
+			valid := extent.NewValid(g.Width, g.Height)
 			if _, _, err := score(p, g, fam, fam.Groups(), layout, Options{Workers: tc.workers, RowRange: tc.rows, Valid: valid}); err != nil {
 				t.Fatal(err)
 			}

@@ -43,7 +43,7 @@
 // merge of shard files gives the accumulators per member it read back
 // instead of reading the cells, and a shard reads only its blocks of
 // Plan.Source with the options Stream would use (PassOptions: workers,
-// preview, the null's row tally, the valid-cell bitset while the family is
+// preview, the null's row tally, the set of valid cells while the family is
 // unclipped) on Grid and Family. The first pass's Sums must carry the
 // valid cells (Clip) and the preview.
 //

@@ -77,7 +77,7 @@ func (s *Study) buildFamily() error {
 // Clip restricts the family to valid, the cells with data the first pass
 // found (Sums.Valid), and records it in the results: from then on the
 // extents are final. Pass calls it after the first pass.
-func (s *Study) Clip(valid extent.Valid) error {
+func (s *Study) Clip(valid *extent.Valid) error {
 	_, trainCells, _ := s.scoredPoints(vocab.RoleTrain)
 	_, testCells, _ := s.scoredPoints(vocab.RoleTest)
 	s.valid = valid

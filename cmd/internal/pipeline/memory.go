@@ -30,7 +30,8 @@ func (m memoryUse) Total() int64 {
 //
 //	runs          extents x grid rows x 40 bytes (a row's slice header and,
 //	              typically, one or two runs of two int32 each)
-//	valid         1 bit per grid cell
+//	valid         at most 1 bit per grid cell and 48 bytes per row
+//	              (extent.MaxValidBytes; rows of few runs take less)
 //	accumulators  workers x (extents + pass.MaxShared) x (2 x layout values
 //	              + 1 + 4096) bins x 16 bytes (each member's, and the shared
 //	              sums of a block)
@@ -52,7 +53,7 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCell
 	bins := int64(2*layoutValues+1) + histBins
 	return memoryUse{
 		Runs:         int64(extents) * rows * 40,
-		Valid:        cells / 8,
+		Valid:        extent.MaxValidBytes(int(cells/max(rows, 1)), int(rows)),
 		Accumulators: int64(workers) * int64(extents+pass.MaxShared) * bins * 16,
 		Blocks:       int64(workers)*int64(blockCells)*8 + extent.BlockCacheBytes(physicalMemory()),
 		Points:       400 * int64(points),

@@ -175,7 +175,7 @@ type Sums struct {
 	Stats pass.Stats
 	// Valid is set by the first pass only: the cells with data, to which
 	// the family is then clipped.
-	Valid extent.Valid
+	Valid *extent.Valid
 	// Preview is set by the first pass only: the coarse map copy.
 	Preview *pass.Preview
 }
@@ -330,7 +330,7 @@ func (s *Study) PassOptions(p *Plan) pass.Options {
 	}
 	if s.valid == nil {
 		// The first pass also finds the valid cells the family is clipped to.
-		opt.Valid = extent.NewValid(s.grid.Cells())
+		opt.Valid = extent.NewValid(s.grid.Width, s.grid.Height)
 	}
 	return opt
 }

@@ -92,8 +92,8 @@ type Study struct {
 	dir      *outdir.Dir
 	ownDir   bool
 	stage    string
-	valid    extent.Valid // nil until known: the family is then unclipped
-	nWarn    int          // family warnings already reported
+	valid    *extent.Valid // nil until known: the family is then unclipped
+	nWarn    int           // family warnings already reported
 	// evals holds the paired-resample evaluator of every scored model x
 	// extent (paired.go).
 	evals map[[2]string]*metrics.Evaluator

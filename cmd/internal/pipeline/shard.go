@@ -234,7 +234,7 @@ func (s *Study) shardPass(ctx context.Context, k int, sh *shardfile.Shard) error
 		return err
 	}
 	if sums.Valid != nil {
-		sh.Valid = shardfile.ValidRuns(sums.Valid, s.grid.Width, *s.rows)
+		sh.Valid = shardfile.ValidRuns(sums.Valid, *s.rows)
 		sh.PreviewWidth, sh.PreviewHeight = sums.Preview.Width, sums.Preview.Height
 		sh.Preview = shardfile.PreviewCells(sums.Preview)
 		s.timed("family clipped as far as the shard's rows tell", func() error { s.shardClip(sums.Valid); return nil })
@@ -249,15 +249,15 @@ func (s *Study) shardPass(ctx context.Context, k int, sh *shardfile.Shard) error
 // shardClip clips the family to found, the valid cells the first pass
 // met in the shard's rows, keeping every cell of the other rows (see
 // RunShard).
-func (s *Study) shardClip(found extent.Valid) {
-	v := extent.NewValid(s.grid.Cells())
-	for w := range v {
-		v[w] = ^uint64(0)
-	}
-	w := s.grid.Width
-	for c := s.rows.First * w; c < s.rows.End*w; c++ {
-		if !found.Has(c) {
-			v[c>>6] &^= 1 << (uint(c) & 63)
+func (s *Study) shardClip(found *extent.Valid) {
+	g := s.grid
+	v := extent.NewValid(g.Width, g.Height)
+	all := []int32{0, int32(g.Width)}
+	for row := 0; row < g.Height; row++ {
+		if row >= s.rows.First && row < s.rows.End {
+			v.SetRow(row, found.Row(row, nil))
+		} else {
+			v.SetRow(row, all)
 		}
 	}
 	_, trainCells, _ := s.scoredPoints(vocab.RoleTrain)

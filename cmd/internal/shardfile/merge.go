@@ -17,7 +17,7 @@ type Merged struct {
 	Members       []string
 	// Valid holds a bit per valid cell in some member, over every shard's
 	// rows.
-	Valid extent.Valid
+	Valid *extent.Valid
 	// Preview holds the preview values (NaN where no shard set one).
 	PreviewWidth, PreviewHeight int
 	Preview                     []float64
@@ -44,7 +44,7 @@ func (m *Merged) Add(s *Shard) error {
 	if m.Shards == 0 {
 		m.Width, m.Height, m.Members = s.Width, s.Height, s.Members
 		m.PreviewWidth, m.PreviewHeight = s.PreviewWidth, s.PreviewHeight
-		m.Valid = extent.NewValid(s.Width * s.Height)
+		m.Valid = extent.NewValid(s.Width, s.Height)
 		m.Preview = make([]float64, s.PreviewWidth*s.PreviewHeight)
 		for i := range m.Preview {
 			m.Preview[i] = math.NaN()
@@ -95,14 +95,8 @@ func (m *Merged) Add(s *Shard) error {
 	}
 	rows := s.Rows()
 	for i, runs := range s.Valid {
-		base := (rows.First + i) * m.Width
-		for j := 0; j < len(runs); j += 2 {
-			for c := runs[j]; c < runs[j+1]; c++ {
-				if m.Valid.Has(base + int(c)) {
-					return bad("valid cell at row %d column %d is in another shard too", rows.First+i, c)
-				}
-				m.Valid.Set(base + int(c))
-			}
+		if err := m.Valid.AddRow(rows.First+i, runs); err != nil {
+			return bad("%v", err)
 		}
 	}
 	for _, c := range s.Preview {

@@ -83,25 +83,11 @@ func Rows(i, n, height int) ([]metrics.BlockRange, pass.RowRange) {
 	return b, pass.RowRange{First: b[0].First, End: b[0].End}
 }
 
-// ValidRuns returns the runs of set bits of v (a grid of width columns) in
-// each row of rows.
-func ValidRuns(v extent.Valid, width int, rows pass.RowRange) [][]int32 {
+// ValidRuns returns the runs of valid cells of v in each row of rows.
+func ValidRuns(v *extent.Valid, rows pass.RowRange) [][]int32 {
 	out := make([][]int32, 0, max(0, rows.End-rows.First))
 	for row := rows.First; row < rows.End; row++ {
-		var runs []int32
-		base := row * width
-		for c := 0; c < width; {
-			if !v.Has(base + c) {
-				c++
-				continue
-			}
-			c0 := c
-			for c < width && v.Has(base+c) {
-				c++
-			}
-			runs = append(runs, int32(c0), int32(c))
-		}
-		out = append(out, runs)
+		out = append(out, v.Row(row, nil))
 	}
 	return out
 }

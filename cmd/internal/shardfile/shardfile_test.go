@@ -48,7 +48,7 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 	s := &Shard{Header: metrics.ShardHeader{Tool: "test", Settings: strings.Repeat("ab", 32), Seed: seed, Shard: i, Shards: n, TotalBlocks: gh, Blocks: blocks,
 		Inputs: []metrics.InputChecksum{{Name: "model:m", SHA256: strings.Repeat("0", 64)}}},
 		Run: []byte(`{"any":"json"}`), Width: gw, Height: gh, Members: members, PreviewWidth: 5, PreviewHeight: 4, Background: &nullmodel.Background{}}
-	valid := extent.NewValid(gw * gh)
+	valid := make([]bool, gw*gh)
 	for p, l := range layouts {
 		ps := Pass{Name: fmt.Sprint("m", p), Layout: l}
 		for range members {
@@ -74,13 +74,13 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 					}
 				}
 				if p == 0 {
-					valid.Set(cell)
+					valid[cell] = true
 				}
 			}
 		}
 		s.Passes = append(s.Passes, ps)
 	}
-	s.Valid = ValidRuns(valid, gw, rows)
+	s.Valid = ValidRuns(extent.NewValidFunc(gw, gh, func(i int) bool { return valid[i] }), rows)
 	for j := 0; j < 20; j++ {
 		if src := (j/5)*4 + 1; src >= rows.First && src < rows.End {
 			s.Preview = append(s.Preview, PreviewCell{j, float64(j) / 7})
@@ -110,7 +110,10 @@ func summary(m *Merged) string {
 		}
 		fmt.Fprintf(&b, "%+v", p.Stats)
 	}
-	fmt.Fprint(&b, m.Valid, m.Preview)
+	for row := 0; row < m.Valid.Height(); row++ {
+		fmt.Fprint(&b, m.Valid.Row(row, nil))
+	}
+	fmt.Fprint(&b, m.Preview)
 	b.Write(nullmodel.EncodeBackground(m.Background))
 	return b.String()
 }
