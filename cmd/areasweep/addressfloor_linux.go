@@ -1,0 +1,44 @@
+package main
+
+/*
+#include <stdio.h>
+#include <sys/resource.h>
+#include <unistd.h>
+
+// Keep in step with minAddressSpace.
+#define AREASWEEP_MIN_ADDRESS_SPACE (2ULL << 30)
+
+// areasweepAddressFloor runs when the program is loaded, before Go's
+// runtime starts: see minAddressSpace.
+__attribute__((constructor)) static void areasweepAddressFloor(void) {
+	struct rlimit r;
+	if (getrlimit(RLIMIT_AS, &r) != 0 || r.rlim_cur == RLIM_INFINITY || r.rlim_cur >= AREASWEEP_MIN_ADDRESS_SPACE) {
+		return;
+	}
+	fprintf(stderr,
+		"areasweep: the process may reserve at most %llu MiB of address space (its limit of virtual memory: ulimit -v, or a cluster job's such as h_vmem), "
+		"and areasweep needs at least %llu MiB to start: Go's runtime, GDAL and the C heap reserve most of it without using it. "
+		"Raise the limit (ulimit -v %llu, in KiB; more for large rasters, as a warning then says) or remove it (ulimit -v unlimited); "
+		"a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space\n",
+		(unsigned long long)r.rlim_cur >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 10);
+	_exit(2);
+}
+*/
+import "C"
+
+// minAddressSpace is the least limit of address space (RLIMIT_AS: ulimit
+// -v, a cluster job's h_vmem) under which areasweep starts, checked when
+// the program is loaded, before Go's runtime starts: below it the process
+// exits with code 2 and a message saying what to raise, before reading or
+// writing anything. Our choice, from measurement (Debian 12, GDAL 3.6, Go
+// 1.26, the 2-core VM of the README's figures; the demo's run, --quiet):
+// Go's runtime and the C heap reserve about 1.6 GiB of address space
+// they do not use, and under lower limits runs stopped with a crash
+// report instead of a message. Go's runtime could not start at 900,000
+// KiB ("failed to reserve page summary memory"); at 1,500,000 KiB GDAL's
+// set-up crashed (SIGSEGV in GDALAllRegister); at 1,600,000 and 1,700,000
+// KiB all ten runs, and at 1,800,000 KiB two of five, ended with a crash
+// report ("pthread_create failed"); at 1,900,000 KiB and at 2 GiB all six
+// finished. Above the floor, a run whose own estimate may not fit warns
+// before any work (pipeline's warnAddressSpace).
+const minAddressSpace = 2 << 30

@@ -1,0 +1,46 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestAddressSpaceFloor: under a limit of virtual memory below
+// minAddressSpace the binary stops before Go's runtime starts, with exit
+// code 2, our message alone (no crash report) and nothing written; at the
+// floor it starts. Without the check, the demo's run under ulimit -v
+// 1,700,000 KiB ended with a crash report (see minAddressSpace).
+func TestAddressSpaceFloor(t *testing.T) {
+	if _, err := exec.LookPath("sh"); err != nil {
+		t.Fatal("sh is needed to set the limit: ", err)
+	}
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	under := func(kib int64, args ...string) (string, int) {
+		cmd := exec.Command("sh", append([]string{"-c", fmt.Sprintf(`ulimit -v %d && exec "$0" "$@"`, kib), areasweepBin}, args...)...)
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		return se.String(), code
+	}
+	for _, kib := range []int64{500_000, 1_700_000, minAddressSpace/1024 - 1} {
+		msg, code := under(kib, "run", "--region", "r.geojson", "--occurrences", "o.csv", "--model", "m=m.tif", "--out", out)
+		if code != 2 {
+			t.Errorf("ulimit -v %d: exit %d, want 2; stderr %q", kib, code, msg)
+		}
+		want := fmt.Sprintf("areasweep: the process may reserve at most %d MiB of address space (its limit of virtual memory: ulimit -v, or a cluster job's such as h_vmem), and areasweep needs at least %d MiB to start", kib/1024, minAddressSpace>>20)
+		if !strings.HasPrefix(msg, want) || strings.Count(msg, "\n") != 1 || !strings.Contains(msg, fmt.Sprintf("ulimit -v %d", minAddressSpace>>10)) {
+			t.Errorf("ulimit -v %d: stderr %q, want one line starting %q and naming ulimit -v %d", kib, msg, want, minAddressSpace>>10)
+		}
+		if _, err := os.Stat(out); !os.IsNotExist(err) {
+			t.Errorf("ulimit -v %d: %s exists (%v)", kib, out, err)
+		}
+	}
+	if msg, code := under(minAddressSpace/1024, "--help"); code != 0 {
+		t.Errorf("ulimit -v %d (the floor): --help exit %d, stderr %q", minAddressSpace/1024, code, msg)
+	}
+}
