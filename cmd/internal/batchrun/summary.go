@@ -73,6 +73,8 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 		what := gdalmsg.Cause(outdir.Cause(err).Error())
 		if outdir.DiskFull(err) {
 			what += " (free some space on that disk)"
+		} else {
+			what += outdir.FileSizeAdvice(err)
 		}
 		return fmt.Errorf("writing the summary into %s failed: %s; finished studies keep their folders, and running the same command again skips them and writes it", o.Out, what)
 	}

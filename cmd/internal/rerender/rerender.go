@@ -136,6 +136,8 @@ func Run(o Options) (string, error) {
 		what := outdir.Cause(err).Error()
 		if outdir.DiskFull(err) {
 			what += " (free some space on that disk, or re-render the report of a copy of the folder on another one)"
+		} else {
+			what += outdir.FileSizeAdvice(err)
 		}
 		return "", fmt.Errorf("writing the report failed: %s; the report files in %s were not changed", what, o.Dir)
 	}

@@ -44,3 +44,32 @@ func TestAddressSpaceFloor(t *testing.T) {
 		t.Errorf("ulimit -v %d (the floor): --help exit %d, stderr %q", minAddressSpace/1024, code, msg)
 	}
 }
+
+// TestFileSizeLimit: a run under a limit of file size too small for its
+// outputs (sh's ulimit -f 60 and 400, in blocks of 512 bytes: POSIX's
+// unit, where bash's own is 1024) stops with exit 1, names the limit and
+// what to do, and leaves --out without any output. Without the advice
+// the message said only "disk I/O error" (the GeoPackage) or "file too
+// large".
+func TestFileSizeLimit(t *testing.T) {
+	s := newSmallStudy(t)
+	for _, blocks := range []int{60, 400} {
+		kib := blocks / 2
+		out := filepath.Join(t.TempDir(), "out")
+		cmd := exec.Command("sh", "-c", fmt.Sprintf(`ulimit -f %d && exec "$0" "$@"`, blocks), areasweepBin, "run", "--quiet", "--region", s.region, "--occurrences", s.occ, "--model", "m="+s.model, "--out", out, "--iterations", "50")
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		want := fmt.Sprintf("(this process may not write a file larger than %d KiB: its limit of file size, ulimit -f, is set; raise it, for example with ulimit -f unlimited); nothing in it was changed", kib)
+		if code != 1 || !strings.HasPrefix(se.String(), "areasweep: writing the results into "+out+" failed: ") || !strings.Contains(se.String(), want) {
+			t.Errorf("ulimit -f %d: exit %d, stderr %q; want exit 1 and %q", kib, code, se.String(), want)
+		}
+		if entries, err := os.ReadDir(out); err == nil && len(entries) > 0 {
+			var names []string
+			for _, e := range entries {
+				names = append(names, e.Name())
+			}
+			t.Errorf("ulimit -f %d: %s holds %v", kib, out, names)
+		}
+	}
+}
