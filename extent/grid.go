@@ -1422,26 +1422,58 @@ func exactSum(v0, v1, v2, v3, v4, v5, v6, v7 float64) float64 {
 	return sum + c
 }
 
+// SameGridTolerance is how far apart, in cells, the cells of two grids of
+// one size may lie and still be one grid (SameAs): our choice, a
+// hundredth of a cell, so that a header that writes the origin and cell
+// size in few digits (an ESRI ASCII grid with 6 decimals: a 30 arcsecond
+// cell, 1/120 degree, as 0.008333, which moves the far edge of a grid 250
+// cells wide by 0.01 cell) is the grid it was made from while it is
+// within that, and a value is never read more than 1% of a cell from the
+// place its own file gives it. Further apart, the cells are another grid
+// and the scores would mix values from other places: the run stops.
+const SameGridTolerance = 0.01
+
+// GridShift returns how far apart the cells of g and o (of one size)
+// lie: the largest distance, in cells of g (across and down apart), of
+// any corner of a cell of o from the same corner of g's, which is
+// largest at the grids' corners (both are affine). +Inf when a rotation
+// term differs by more than 1e-9 of a cell.
+func (g *Grid) GridShift(o *Grid) float64 {
+	a, b := g.GeoTransform, o.GeoTransform
+	cell := math.Max(math.Abs(a[1]), math.Abs(a[5]))
+	if math.Abs(a[2]-b[2]) > 1e-9*cell || math.Abs(a[4]-b[4]) > 1e-9*cell {
+		return math.Inf(1)
+	}
+	w, h := float64(g.Width), float64(g.Height)
+	shift := 0.0
+	for _, c := range [][2]float64{{0, 0}, {w, 0}, {0, h}, {w, h}} {
+		dx := math.Abs((b[0] + c[0]*b[1]) - (a[0] + c[0]*a[1]))
+		dy := math.Abs((b[3] + c[1]*b[5]) - (a[3] + c[1]*a[5]))
+		shift = math.Max(shift, math.Max(dx/math.Abs(a[1]), dy/math.Abs(a[5])))
+	}
+	if math.IsNaN(shift) {
+		return math.Inf(1)
+	}
+	return shift
+}
+
 // SameAs reports how g and o differ, or "" when they are one grid.
 func (g *Grid) SameAs(o *Grid) string {
 	var diffs []string
 	if g.Width != o.Width || g.Height != o.Height {
 		diffs = append(diffs, fmt.Sprintf("size %dx%d vs %dx%d", g.Width, g.Height, o.Width, o.Height))
 	}
-	// The cells must lie at the same places: the grids' four corners
-	// within a millionth of a cell (as the CRS comparison below), so
+	// The cells must lie at the same places: every cell of the two grids
+	// within SameGridTolerance of a cell of each other (GridShift), so
 	// that a header that writes the origin and cell size in fewer
 	// digits (an ESRI ASCII grid as GDAL writes it, 12 decimals: a
-	// 1/24 degree cell as 0.041666666667) is the same grid as the
-	// GeoTIFF it was made from, whose corner then differs by some 1e-9
-	// of a cell. The rotation terms are compared as before.
-	a, b := g.GeoTransform, o.GeoTransform
-	cell := math.Max(math.Abs(a[1]), math.Abs(a[5]))
-	w, h := float64(g.Width), float64(g.Height)
-	off := func(v, u float64) bool { return math.Abs(v-u) > 1e-6*cell }
-	if off(a[0], b[0]) || off(a[3], b[3]) || off(a[0]+w*a[1], b[0]+w*b[1]) || off(a[3]+h*a[5], b[3]+h*b[5]) ||
-		math.Abs(a[2]-b[2]) > 1e-9*cell || math.Abs(a[4]-b[4]) > 1e-9*cell {
-		diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v", g.GeoTransform, o.GeoTransform))
+	// 1/24 degree cell as 0.041666666667, some 1e-9 of a cell off; or
+	// as other tools write it, 6 decimals) is the same grid as the
+	// GeoTIFF it was made from. The rotation terms are compared as before.
+	if d := g.GridShift(o); math.IsInf(d, 1) {
+		diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v (their rotation terms differ)", g.GeoTransform, o.GeoTransform))
+	} else if d > SameGridTolerance {
+		diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v (cells up to %s of a cell apart, more than the %g of a cell we take for one grid)", g.GeoTransform, o.GeoTransform, strconv.FormatFloat(d, 'g', 2, 64), SameGridTolerance))
 	}
 	if !sameCRS(g, o) {
 		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))

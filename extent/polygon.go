@@ -636,9 +636,8 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 		geom := byID[id]
 		if lsr.Geographic() && !g.Geographic {
 			// Longitude edges are checked here, where they are the
-			// user's: on a projected raster an edge is straight in the
-			// raster's CRS, and one that runs round a pole (polar
-			// stereographic) is no crossing.
+			// user's: on a projected raster one that runs round a pole
+			// (polar stereographic) is no crossing.
 			if d, err := densifyWholeTurns(geom, lsr); err != nil {
 				return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 			} else if d != nil {
@@ -648,6 +647,14 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 		hadCentre := false
 		if lsr.Geographic() && !g.Geographic {
 			hadCentre = holdsCentreCell(geom, g, lsr)
+		}
+		// An edge is a straight line in the layer's CRS: vertices are
+		// added along it so that, transformed, it still follows that
+		// line's image (densifyEdges), not the chord between its ends.
+		if d, err := densifyEdges(geom, lsr, g); err != nil {
+			return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
+		} else if d != nil {
+			geom = d
 		}
 		if err := geom.Reproject(g.srs); err != nil {
 			return nil, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))

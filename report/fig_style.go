@@ -156,7 +156,29 @@ var glyphs = []draw.GlyphDrawer{
 	draw.CrossGlyph{}, draw.PlusGlyph{}, draw.RingGlyph{}, draw.BoxGlyph{},
 }
 
-func modelColor(i int) color.Color      { return lineColors[i%len(lineColors)] }
+// modelColors are the models' colours: the "muted" qualitative scheme
+// of Paul Tol (op. cit.), nine colours published as distinct for the
+// common colour-vision deficiencies, so that up to nine models each have
+// their own colour (the six of lineColors gave the 1st and 7th model one
+// colour). We leave out its pale grey (meant for no data; the nulls are
+// grey) and order the rest so that neighbours differ most and the two
+// lightest come last: indigo, rose, green, wine, teal, olive, purple,
+// cyan, sand. Past nine, a model shares its colour with the models nine,
+// eighteen, ... before it but not their line pattern (seven, modelDash)
+// up to 63 models, nor their marker (eight, modelGlyph) up to 72.
+var modelColors = []color.RGBA{
+	{0x33, 0x22, 0x88, 255},
+	{0xCC, 0x66, 0x77, 255},
+	{0x11, 0x77, 0x33, 255},
+	{0x88, 0x22, 0x55, 255},
+	{0x44, 0xAA, 0x99, 255},
+	{0x99, 0x99, 0x33, 255},
+	{0xAA, 0x44, 0x99, 255},
+	{0x88, 0xCC, 0xEE, 255},
+	{0xDD, 0xCC, 0x77, 255},
+}
+
+func modelColor(i int) color.Color      { return modelColors[i%len(modelColors)] }
 func modelDash(i int) []vg.Length       { return dashes[i%len(dashes)] }
 func modelGlyph(i int) draw.GlyphDrawer { return glyphs[i%len(glyphs)] }
 

@@ -3,6 +3,7 @@ package main
 import (
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -139,6 +140,34 @@ func TestSuspectInputsWarned(t *testing.T) {
 		})
 		se, ws := run(t, "--model", "m="+other, "--occurrences", s.occ)
 		says(t, se, ws, "declares the nodata value -1, and its lowest value, -3.4028234663852886e+38", "model m", "scored as data")
+	})
+	t.Run("nodata 1e40 beyond a Float32 band's range", func(t *testing.T) {
+		// A GeoTIFF written by GDAL's Python bindings declaring 1e40
+		// (SetNoDataValue; GDAL holds it as inf on a Float32 band, where
+		// gdal_translate -a_nodata would have clamped it to the largest
+		// float32), its cells without
+		// data holding the lowest float32: the warning gives the value as
+		// GDAL holds it, in words, not as Go's "+Inf".
+		f := &badFixture{smallStudy: s}
+		low := f.rasterWith(t, "low.tif", s.gt, wgs84WKT, func(i int) float64 {
+			if math.IsNaN(s.vals[i]) {
+				return -math.MaxFloat32
+			}
+			return s.vals[i]
+		})
+		p := filepath.Join(s.dir, "nodata1e40.tif")
+		script := "import sys\nfrom osgeo import gdal\ngdal.UseExceptions()\nd = gdal.Translate(sys.argv[2], sys.argv[1])\nd.GetRasterBand(1).SetNoDataValue(1e40)\nd = None\n"
+		if out, err := exec.Command("/usr/bin/python3", "-c", script, low, p).CombinedOutput(); err != nil {
+			if os.Getenv("CI") == "true" {
+				t.Fatalf("python3 osgeo: %v: %s", err, out)
+			}
+			t.Skipf("python3 with osgeo (Debian's python3-gdal) cannot write the GeoTIFF: %v: %s", err, out)
+		}
+		se, ws := run(t, "--model", "m="+p, "--occurrences", s.occ)
+		says(t, se, ws, "declares the nodata value inf (as GDAL holds it: a value written beyond the range of the Float32 band, such as 1e40", "model m", "scored as data")
+		if strings.Contains(se, "Inf") {
+			t.Errorf("Go's Inf printed: %s", se)
+		}
 	})
 	t.Run("one file as two models", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "again="+s.model, "--occurrences", s.occ)

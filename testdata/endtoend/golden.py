@@ -33,8 +33,10 @@ from the documented rules WITHOUT areasweep:
 
   membership  cell centres rasterized with GDAL (gdal.RasterizeLayer, whose
               default burns the cells whose centre is inside: the documented
-              cell-centre rule), polygons reprojected to the grid CRS vertex
-              by vertex with OGR; the hull by pyproj's gnomonic projection on
+              cell-centre rule), polygons in another CRS than the grid's
+              cut every 0.0005 degrees in their own CRS (OGR Segmentize: their
+              edges are straight there) and reprojected vertex by vertex
+              with OGR; the hull by pyproj's gnomonic projection on
               the unit sphere about the training points' mean direction
               (great circles become straight lines) and a point-in-polygon
               test; region buffers from pyproj Geod(ellps="WGS84").inv
@@ -50,7 +52,11 @@ from the documented rules WITHOUT areasweep:
               densifies the boundary every cell side (README), which can
               overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
               cells inside the buffer by less than that are "ambiguous",
-              listed and not asserted.
+              listed and not asserted; so are, for a region in another CRS
+              than the grid's, the centres within 0.01 cell of its true
+              edge and the cells whose distance to it is within 0.01 cell
+              side of a buffer's (README: areasweep follows such edges to
+              within 0.01 cell).
   cell areas  latitude-longitude cells: the exact WGS84 area of the
               quadrangle (authalic latitude, Snyder 1987 USGS PP 1395
               eqs. 3-11 to 3-13), cross-checked here against pyproj
@@ -223,6 +229,9 @@ STUDIES.append(dict(
     tolerance_auc=0.25,
 ))
 ITERATIONS, SEED = 10, 11
+# README: a region in another CRS than the grid's follows its true edges to
+# within this share of a cell.
+DENSIFY_CELLS = 0.01
 
 # ---------------------------------------------------------------- inputs
 
@@ -375,6 +384,11 @@ def region_geoms(spec, layer=None):
                 ring.AddPoint_2D(float(x), float(y))
             g.AddGeometry(ring)
         if spec["crs"] != "EPSG:4326" and layer["crs"] != spec["crs"]:
+            # An edge is straight in the layer's own CRS (README): cut
+            # every 0.0005 degrees (about 50 m, 0.05 of a 1 km cell; such a
+            # piece of a parallel at 48 N strays some 1e-4 m from its
+            # chord in UTM) before the vertices are transformed.
+            g.Segmentize(0.0005 if src.IsGeographic() else 50.0)
             g.Transform(ct)
         geoms.append(g)
     return geoms
@@ -736,7 +750,14 @@ def study(spec):
     if planar_boundary_distance(geoms, xs, ys).min() < 1e-6 * gt[1]:
         sys.exit(f"{spec['name']}: a cell centre lies on a region edge; move the vertices")
     base = rasterize(spec, geoms) & valid
-    extents = [("base", base, [])]
+    # A region in another CRS than the grid's: areasweep follows its edges
+    # (straight in that CRS) to within DENSIFY_CELLS of a cell (README), so
+    # a centre that near the true edge may fall on either side of it, and a
+    # distance to the boundary may be off by as much.
+    cross = spec["crs"] != "EPSG:4326" and spec["region"]["crs"] != spec["crs"]
+    tol_cells = DENSIFY_CELLS if cross else 0.0
+    base_amb = np.nonzero(planar_boundary_distance(geoms, xs, ys) < tol_cells * abs(gt[1]))[0] if cross else []
+    extents = [("base", base, sorted(int(a) for a in base_amb))]
     if spec["region_buffers"]:
         inside = rasterize(spec, geoms)
         pts = boundary_points(spec, geoms)
@@ -752,7 +773,7 @@ def study(spec):
             # distance is overestimated by at most sqrt(g^2 + (s/2)^2) - g:
             # only cells just inside the buffer's edge can be missed.
             half = side / 2
-            amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3)]
+            amb = near[((gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3)) | (np.abs(gd - dm) <= tol_cells * side + 1e-3)]
             if d > 0:
                 mask = (inside | within) & valid
                 eid = f"region_{d:g}km"

@@ -13,10 +13,15 @@ GDAL's Python bindings (osgeo.ogr: OGR's coordinate transformation and GEOS pred
              to exactly one unit (README: adjacent units never share a cell);
   occupied   for the training points given (none on a boundary), the units holding at least one.
 
-The layer is taken to the raster's CRS as README says areasweep does: its vertices transformed
-(edges straight in the raster's CRS), a whole-turn edge (-180 to 180) first drawn as its parallel
-in 0.1 degree steps on a projected raster, and on a latitude-longitude raster each polygon moved by
-whole turns to where it meets the raster's longitude range (a copy per turn it meets). Invalid
+A layer in the raster's CRS is used as it is, on a latitude-longitude raster each polygon moved by
+whole turns to where it meets the raster's longitude range (a copy per turn it meets). A layer in
+another CRS keeps its edges straight in its own CRS (README): each cell centre is transformed to the
+layer's CRS (osr) and tested there (GEOS Contains, the layer's own polygons, no vertex of them
+transformed), and a centre within BAND cells of the true boundary may go either way (areasweep
+follows that boundary to within 0.01 cell); the distance is measured in the raster's CRS to the
+boundary cut in the layer's CRS every 1/2000 of its envelope's side, transformed, and sampled every
+BAND/4 cell between those points (a superset of the centres within BAND: distances to the samples
+are within BAND/8 of those to the line through them). Invalid
 features are repaired as README says: the area inside any outer ring and outside every hole
 (the union of the parts' shells less the union of their holes, GEOS).
 
@@ -24,7 +29,9 @@ Cases: a region with a hole and an island running off a latitude-longitude raste
 tiling (scipy) with its vertices on cell centres of a 0.05 degree grid, some ids shared by two
 triangles; a region in WGS84 and rotated-square units in ETRS89-LAEA on a UTM raster; units
 across the antimeridian (split at 180, one id) and a polar cap on global grids starting at -180,
-0 and -170.5; a cap and a split sector on a polar stereographic raster; invalid polygons
+0 and -170.5; a cap and a split sector on a polar stereographic raster; a rectangle of four
+corners in ETRS89-LAEA with edges of 2000 to 3000 km on a 0.25 degree latitude-longitude raster
+(its edges are curves there, some 100 km from the chords between its corners); invalid polygons
 (overlapping parts, a hole running out of its shell, a bow-tie). Inputs are fixed (numpy seeds),
 so the output is deterministic.
 """
@@ -32,6 +39,7 @@ import json
 import os
 
 import numpy as np
+from scipy.spatial import cKDTree
 from osgeo import ogr, osr
 from scipy.spatial import Delaunay
 
@@ -39,6 +47,7 @@ ogr.UseExceptions()
 from osgeo import gdal
 gdal.PushErrorHandler("CPLQuietErrorHandler")  # GEOS notices of the invalid cases
 TOL = 1e-9  # of a cell side: a centre this near an edge is on it
+BAND = 0.02  # of a cell side: in another CRS, a centre this near the true edge may go either way
 
 
 def srs(code):
@@ -150,6 +159,45 @@ def membership(g, case):
     return inside, onb
 
 
+def membership_own_crs(g, layer_crs, case):
+    """(inside, boundary) for g in layer_crs, another CRS than the raster's: centres transformed to
+    layer_crs and tested there (inside), and those within BAND cells of g's boundary (in the raster's
+    CRS, to the boundary cut finely in layer_crs and transformed)."""
+    x, y = centres(case)
+    h, w = x.shape
+    to_layer = osr.CoordinateTransformation(srs(case['crs']), srs(layer_crs))
+    lx = np.array(to_layer.TransformPoints(np.stack([x.ravel(), y.ravel()], 1).tolist()))
+    inside = np.zeros(h * w, bool)
+    pt = ogr.Geometry(ogr.wkbPoint)
+    for i, (a, b) in enumerate(lx[:, :2]):
+        if np.isfinite(a) and np.isfinite(b):
+            pt.SetPoint_2D(0, float(a), float(b))
+            inside[i] = g.Contains(pt)
+    gt = case['gt']
+    env = g.GetEnvelope()
+    bnd = g.GetBoundary()
+    bnd.Segmentize(max(env[1] - env[0], env[3] - env[2]) / 2000)
+    to_raster = osr.CoordinateTransformation(srs(layer_crs), srs(case['crs']))
+    samples = []
+    lines = [bnd.GetGeometryRef(i) for i in range(bnd.GetGeometryCount())] if bnd.GetGeometryCount() else [bnd]
+    for line in lines:
+        pts = line.GetPoints()
+        q = np.array(to_raster.TransformPoints([p[:2] for p in pts]))[:, :2]
+        c = np.stack([(q[:, 0] - gt[0]) / gt[1], (q[:, 1] - gt[3]) / gt[5]], 1)  # in cells
+        for p0, p1 in zip(c[:-1], c[1:]):
+            if not (np.isfinite(p0).all() and np.isfinite(p1).all()):
+                continue
+            n = max(1, int(np.ceil(np.hypot(*(p1 - p0)) / (BAND / 4))))
+            f = np.arange(n)[:, None] / n
+            samples.append(p0 + f * (p1 - p0))
+        samples.append(c[-1:][np.isfinite(c[-1:]).all(1)])
+    tree = cKDTree(np.concatenate(samples))
+    cells = np.stack([(x.ravel() - gt[0]) / gt[1], (y.ravel() - gt[3]) / gt[5]], 1)
+    dist, _ = tree.query(cells)
+    onb = dist <= BAND + BAND / 8
+    return (inside & ~onb).reshape(h, w), onb.reshape(h, w)
+
+
 def runs(mask):
     out = []
     for r in range(mask.shape[0]):
@@ -173,8 +221,11 @@ def solve(case):
         u = gs[0]
         for g in gs[1:]:
             u = u.Union(g)
-        u = on_raster(u, lcrs, case)
-        ins, onb = membership(u, case)
+        if srs(lcrs).IsSame(srs(case['crs'])):
+            u = on_raster(u, lcrs, case)
+            ins, onb = membership(u, case)
+        else:
+            ins, onb = membership_own_crs(u, lcrs, case)
         units.append({'id': uid, 'inside': runs(ins), 'boundary': [[int(r), int(c)] for r, c in np.argwhere(onb)]})
         union = u if union is None else union.Union(u)
         groups[uid] = u
@@ -182,23 +233,27 @@ def solve(case):
     out['features'] = case['features']
     out['units'] = units
     if case.get('tiling'):
-        ins, _ = membership(union, case)
+        ins, _ = membership(union, case) if srs(lcrs).IsSame(srs(case['crs'])) else membership_own_crs(union, lcrs, case)
         allb = np.zeros_like(ins)
         for u in units:
             for r, c in u['boundary']:
                 allb[r, c] = True
         out['tiled'] = [[int(r), int(c)] for r, c in np.argwhere(allb & ins)]
     if case.get('train'):
-        rs = srs(case['crs'])
+        # A layer in another CRS than the raster's is tested in its own CRS (its units in groups
+        # are there), where TOL is taken of the side of its envelope.
+        own = not srs(lcrs).IsSame(srs(case['crs']))
+        rs = srs(lcrs) if own else srs(case['crs'])
         ct = osr.CoordinateTransformation(srs('EPSG:4326'), rs)
         occ = set()
         for lon, lat in case['train']:
             x, y = (lon, lat) if rs.IsGeographic() else ct.TransformPoint(lon, lat)[:2]
             pt = ogr.Geometry(ogr.wkbPoint)
-            for turn in ([0, -360, 360] if rs.IsGeographic() else [0]):
+            for turn in ([0, -360, 360] if rs.IsGeographic() and not own else [0]):
                 pt.SetPoint_2D(0, x + turn, y)
                 for uid, u in groups.items():
-                    if u.GetBoundary().Distance(pt) <= TOL * abs(case['gt'][1]):
+                    env = u.GetEnvelope()
+                    if u.GetBoundary().Distance(pt) <= TOL * (max(env[1] - env[0], env[3] - env[2]) if own else abs(case['gt'][1])):
                         raise SystemExit(f'{case["name"]}: training point {lon} {lat} on the boundary of {uid}')
                     if u.Contains(pt):
                         occ.add(uid)
@@ -283,7 +338,13 @@ cases.append({'name': 'polar stereographic', 'crs': 'EPSG:3413', 'gt': [-2500000
                            {'id': 'sector', 'wkt': sq(-180, 66.2, -171.7, 79.1)}, {'id': 'quad', 'wkt': sq(20.5, 70.5, 40.5, 78.5)}],
               'train': [(10.0, 85.0), (-175.0, 75.0)]})
 
-# 6. Invalid polygons, repaired.
+# 6. A rectangle of four corners in ETRS89-LAEA, edges of 2000 to 3000 km, on a 0.25 degree
+# latitude-longitude raster: its edges are curves there.
+cases.append({'name': 'long-edged LAEA rectangle on a latitude-longitude raster', 'crs': 'EPSG:4326',
+              'gt': [-20.0, 0.25, 0, 72.0, 0, -0.25], 'width': 240, 'height': 152, 'layer_crs': 'EPSG:3035',
+              'features': [{'id': '', 'wkt': sq(2600000.5, 1500000.5, 5600000.5, 4000000.5)}]})
+
+# 7. Invalid polygons, repaired.
 cases.append({'name': 'invalid polygons', 'crs': 'EPSG:4326', 'gt': [0.0, 0.1, 0, 10.0, 0, -0.1], 'width': 100, 'height': 100,
               'layer_crs': 'EPSG:4326',
               'features': [{'id': 'overlap', 'wkt': 'MULTIPOLYGON(((1.02 1.02,5.02 1.02,5.02 5.02,1.02 5.02,1.02 1.02)),((3.02 3.02,7.02 3.02,7.02 7.02,3.02 7.02,3.02 3.02)))'},

@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"fmt"
 	"math"
 
 	"github.com/airbusgeo/godal"
@@ -38,6 +39,39 @@ func NoDataAs(dt godal.DataType, v float64) float64 {
 		v = math.Copysign(math.MaxFloat32, v)
 	}
 	return v
+}
+
+// NoDataText returns the raster's nodata value (NoData) as messages give
+// it; "" when it has none. See NoDataWords.
+func (r *Raster) NoDataText() string {
+	if !r.hasNodata {
+		return ""
+	}
+	return NoDataWords(r.dtype, r.nodata)
+}
+
+// NoDataWords returns the nodata value v of a band of type dt, as NoData
+// returns it, in words for a message: the number GDAL holds (%g), and,
+// where that is beyond what the band's cells can hold, that said plainly
+// rather than printed as Go's "+Inf". A GeoTIFF's nodata value of 1e40 on
+// a Float32 band is held by GDAL as infinity (gdalinfo: "NoData
+// Value=inf"); a VRT's or an ENVI header's is held as 1e+40, which no
+// float32 cell equals.
+func NoDataWords(dt godal.DataType, v float64) string {
+	switch {
+	case math.IsInf(v, 0):
+		sign := ""
+		if v < 0 {
+			sign = "-"
+		}
+		if dt == godal.Float32 {
+			return fmt.Sprintf("%sinf (as GDAL holds it: a value written beyond the range of the Float32 band, such as %s1e40, is read as infinity; only infinite cells equal it)", sign, sign)
+		}
+		return sign + "inf"
+	case dt == godal.Float32 && math.Abs(v) > math.MaxFloat32:
+		return fmt.Sprintf("%g, beyond the range of the Float32 band (at most %g either side of 0), so that no cell equals it", v, float64(math.MaxFloat32))
+	}
+	return fmt.Sprintf("%g", v)
 }
 
 // noDataNear tells, on a Float32 or Float64 band, the cells that GDAL's

@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"os"
 	"os/exec"
 	"path/filepath"
 	"strings"
@@ -83,5 +84,61 @@ func TestSwappedOnGrid(t *testing.T) {
 	defer e.Close()
 	if n := swappedOnGrid([]report.Point{{Lon: -15, Lat: -175}, {Lon: -15, Lat: 185}}, e); n != 2 {
 		t.Errorf("across 180: %d, want 2", n)
+	}
+}
+
+// TestUllrCommand: a model whose cells lie within half a cell of the
+// first's but further than extent.SameGridTolerance is refused with, as
+// well as gdalwarp, the gdal_translate -a_ullr command that gives it the
+// first grid's corners (west 10 W, north 50 N, east -10 + 600/120 = -5,
+// south 50 - 400/120 = 46.666..., by hand). Where gdal_translate is
+// installed, the command is run on an ESRI ASCII grid whose header writes
+// that 30 arcsecond grid in 6 decimals (cellsize 0.008333: cells up to
+// 0.024 of a cell off), and its output is on the grid.
+func TestUllrCommand(t *testing.T) {
+	extent.Register()
+	first, err := extent.NewGrid(600, 400, [6]float64{-10, 1.0 / 120, 0, 50, 0, -1.0 / 120}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer first.Close()
+	dir := t.TempDir()
+	asc := filepath.Join(dir, "rounded.asc")
+	got := ullrCommand(first, asc)
+	want := "gdal_translate -a_ullr -10 50 -5 46.666666666666664 " + asc + " " + filepath.Join(dir, "rounded_grid.tif")
+	if !strings.HasPrefix(got, want) {
+		t.Errorf("got %q, want %q...", got, want)
+	}
+	if _, err := exec.LookPath("gdal_translate"); err != nil {
+		t.Skip("gdal_translate is not installed")
+	}
+	var b strings.Builder
+	b.WriteString("ncols 600\nnrows 400\nxllcorner -10.000000\nyllcorner 46.666667\ncellsize 0.008333\nNODATA_value -9999\n")
+	row := strings.Repeat("0.5 ", 600)
+	for range 400 {
+		b.WriteString(row + "\n")
+	}
+	if err := os.WriteFile(asc, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	g, err := extent.NewGrid(600, 400, [6]float64{-10, 0.008333, 0, 46.666667 + 400*0.008333, 0, -0.008333}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	if d := first.SameAs(g); d == "" {
+		t.Fatal("the 6-decimal header's grid (0.024 of a cell off) taken for the first grid")
+	}
+	args := strings.Fields(strings.SplitN(got, ",", 2)[0])
+	if out, err := exec.Command(args[0], append([]string{"-q", "-a_srs", "EPSG:4326"}, args[1:]...)...).CombinedOutput(); err != nil {
+		t.Fatalf("%s: %v %s", got, err, out)
+	}
+	fixed, err := extent.OpenGrid(filepath.Join(dir, "rounded_grid.tif"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer fixed.Close()
+	if s := first.GridShift(fixed); s > 1e-6 {
+		t.Errorf("the command's output is %g of a cell off the grid", s)
 	}
 }

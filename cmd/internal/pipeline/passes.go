@@ -64,16 +64,16 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		s.warn(fmt.Sprintf("%s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so it is not scored on any extent (every cell ties with every test point): check that this is the file you meant", modelWho(p.Model), st.Min))
 	} else if r, ok := p.src.(*pass.Raster); ok && st.Area > 0 && noDataMarker(st.Min) {
 		declared := "declares no nodata value"
-		if nd, has := r.NoData(); has {
-			declared = fmt.Sprintf("declares the nodata value %g", nd)
+		if nd := r.NoDataText(); nd != "" {
+			declared = "declares the nodata value " + nd
 		}
 		s.warn(fmt.Sprintf("%s (%s) %s, and its lowest value, %g, on %.4g%% of the extents' area, is one that tools write for cells without data: those cells are scored as data; if they mean no data, declare it (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
 			modelWho(p.Model), p.Model.Path, declared, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 	}
 	if r, ok := p.src.(*pass.Raster); ok && sums.Stats.Area > 0 {
 		if st, held := sums.Stats, r.NoDataUnheld(); held != "" {
-			nd, _ := r.NoData()
-			s.warn(fmt.Sprintf("%s (%s) declares the nodata value %g, which its %s cannot hold, so no cell is no data and every cell is scored as data (its lowest value, %g, on %.4g%% of the extents' area); if its cells without data hold another value (gdal_translate -ot turns a value beyond the type's range into the nearest it holds), declare that one (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
+			nd := r.NoDataText()
+			s.warn(fmt.Sprintf("%s (%s) declares the nodata value %s, which its %s cannot hold, so no cell is no data and every cell is scored as data (its lowest value, %g, on %.4g%% of the extents' area); if its cells without data hold another value (gdal_translate -ot turns a value beyond the type's range into the nearest it holds), declare that one (e.g. gdal_translate -a_nodata %g %s %s) and give that file",
 				modelWho(p.Model), p.Model.Path, nd, held, st.Min, 100*float64(st.FloorArea)/float64(st.Area), st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_nodata.tif")))
 		}
 	}

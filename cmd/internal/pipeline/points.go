@@ -167,9 +167,20 @@ func (s *Study) openGrid() error {
 			continue
 		}
 		if d := s.grid.SameAs(g); d != "" {
-			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid, e.g. %s onto the grid of %s: %s",
+			rounded := ""
+			if shift := s.grid.GridShift(g); s.grid.Width == g.Width && s.grid.Height == g.Height && !strings.Contains(d, "CRS ") && shift < 0.5 {
+				// Less than half a cell: most likely one grid whose
+				// header (an ESRI ASCII grid's, with few decimals) is
+				// rounded, which only the user can tell.
+				rounded = fmt.Sprintf("; or, if %s holds the values of the cells of %s and only the numbers of its header are rounded, give it the grid of %s: %s", m.Path, s.models[0].Name, s.models[0].Name, ullrCommand(s.grid, m.Path))
+			}
+			return fault.BadInput(fmt.Errorf("%w: %s (%s) and %s (%s) differ in %s; resample them onto one grid, e.g. %s onto the grid of %s: %s%s",
 				extent.ErrGridsDiff, s.models[0].Name, s.models[0].Path, m.Name, m.Path, d, m.Name, s.models[0].Name,
-				onGridCommand(s.grid, s.models[0].Path, m.Path, strings.Contains(d, "CRS "))))
+				onGridCommand(s.grid, s.models[0].Path, m.Path, strings.Contains(d, "CRS ")), rounded))
+		}
+		if shift := s.grid.GridShift(g); shift > 1e-6 {
+			s.warn(fmt.Sprintf("%s: the cells of %s lie up to %.2g of a cell from those of %s (%s), whose grid is used for both (within the %g of a cell we take for one grid: a header's numbers written with few decimals, as an ESRI ASCII grid's 0.008333 for 1/120 degree)",
+				m.who(), m.Path, shift, s.models[0].Name, s.models[0].Path, extent.SameGridTolerance))
 		}
 		g.Close()
 	}
@@ -201,6 +212,16 @@ func onGridCommand(g *extent.Grid, first, path string, crs bool) string {
 	return fmt.Sprintf("gdalwarp%s -te %s %s %s %s -tr %s %s -r bilinear %s %s (-r near for a model of classes), and give %s",
 		t, num(b[0]), num(b[1]), num(b[2]), num(b[3]),
 		num(math.Abs(gt[1])), num(math.Abs(gt[5])), shellArg(path), shellArg(out), out)
+}
+
+// ullrCommand is the gdal_translate command that gives the raster at
+// path the corners of grid g (-a_ullr), its cells unchanged, and the
+// file to give then.
+func ullrCommand(g *extent.Grid, path string) string {
+	b := g.Bounds() // west, south, east, north
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	out := strings.TrimSuffix(path, filepath.Ext(path)) + "_grid.tif"
+	return fmt.Sprintf("gdal_translate -a_ullr %s %s %s %s %s %s, and give %s", num(b[0]), num(b[3]), num(b[2]), num(b[1]), shellArg(path), shellArg(out), out)
 }
 
 // shellArg is path as a shell command's argument in the commands the

@@ -1,0 +1,58 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"testing"
+)
+
+// TestModelStylesDistinct: every model up to len(modelColors) (nine, the
+// count README gives) has a colour of its own; past that, models sharing
+// a colour differ in line pattern up to 63 models and in marker up to 72
+// (the least common multiples of the counts of colours and of patterns
+// or markers); no model is drawn in a grey, so none looks like a null
+// (nullLineStyle: grey, dotted, open markers), whichever null.
+func TestModelStylesDistinct(t *testing.T) {
+	if len(modelColors) < 9 {
+		t.Fatalf("%d model colours, README promises 9", len(modelColors))
+	}
+	rgb := func(c color.Color) string {
+		r, g, b, _ := c.RGBA()
+		return fmt.Sprintf("%02x%02x%02x", r>>8, g>>8, b>>8)
+	}
+	for i := range 9 {
+		for j := range i {
+			if rgb(modelColor(i)) == rgb(modelColor(j)) {
+				t.Errorf("models %d and %d share colour #%s", j+1, i+1, rgb(modelColor(i)))
+			}
+		}
+	}
+	line := map[string]int{}
+	for i := range 63 {
+		k := fmt.Sprintf("%s %v", rgb(modelColor(i)), modelDash(i))
+		if j, ok := line[k]; ok {
+			t.Errorf("models %d and %d share colour and line pattern", j+1, i+1)
+		}
+		line[k] = i
+	}
+	mark := map[string]int{}
+	for i := range 72 {
+		k := fmt.Sprintf("%s %T", rgb(modelColor(i)), modelGlyph(i))
+		if j, ok := mark[k]; ok {
+			t.Errorf("models %d and %d share colour and marker", j+1, i+1)
+		}
+		mark[k] = i
+	}
+	for i := range 256 {
+		r, g, b, _ := modelColor(i).RGBA()
+		if r == g && g == b {
+			t.Errorf("model %d drawn in a grey", i+1)
+		}
+		for k := range 6 {
+			ls, gs := nullLineStyle(k)
+			if rgb(modelColor(i)) == rgb(ls.Color) || rgb(modelColor(i)) == rgb(gs.Color) {
+				t.Errorf("model %d drawn in the colour of null %d", i+1, k+1)
+			}
+		}
+	}
+}
