@@ -89,6 +89,44 @@ func BenchmarkBuildExtents(b *testing.B) {
 	}
 }
 
+// BenchmarkRegionBuffersFar measures building region buffers every 20 km
+// in and out to 300 km around a region with a ragged edge, on a
+// 6-million-cell latitude-longitude grid (cells of about 0.7 by 0.9 km):
+// the region buffers of a 60-extent family. The walked tiles of its
+// distance field far from the boundary (a site every cell side) have
+// more than a hundred sites near them (maxWalkNear). It reports the
+// process CPU time per build.
+func BenchmarkRegionBuffersFar(b *testing.B) {
+	dir := b.TempDir()
+	t := &testing.T{}
+	// A ragged coast: the north edge zigzags 0.4 degrees every 0.1 degree,
+	// so the boundary is long and its sites many.
+	ring := [][2]float64{{4, 40}, {14, 40}}
+	for i := 100; i >= 0; i-- {
+		ring = append(ring, [2]float64{4 + 0.1*float64(i), 47 + 0.4*float64(i%2)})
+	}
+	ring = append(ring, [2]float64{4, 40})
+	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{ring})
+	step := 24.0 / 3000
+	g, err := NewGrid(3000, 2000, [6]float64{-3, step, 0, 52, 0, -step}, "EPSG:4326")
+	if err != nil {
+		b.Fatal(err)
+	}
+	var ds []float64
+	for d := 20.0; d <= 300; d += 20 {
+		ds = append(ds, d, -d)
+	}
+	spec := Spec{Region: region, RegionBuffersKm: ds}
+	b.ReportAllocs()
+	c0 := processCPU()
+	for i := 0; i < b.N; i++ {
+		if _, err := Build(g, nil, spec, nil, nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric((processCPU()-c0)/float64(b.N), "cpu-s/op")
+}
+
 // BenchmarkOutline measures tracing the outline of a 300 km region buffer
 // on a 4-million-cell grid from its runs.
 func BenchmarkOutline(b *testing.B) {
