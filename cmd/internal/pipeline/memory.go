@@ -159,7 +159,7 @@ func (s *Study) checkMemory() error {
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
-	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs %s for the map of cells with data (1 bit per cell) and the extents' row runs, "+
+	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs up to %s for the cells with data (at most 1 bit per cell) and the extents' row runs, "+
 		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers, extents or --iterations",
 		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples)))
