@@ -572,3 +572,176 @@ func BenchmarkSortChordSites(b *testing.B) {
 		})
 	}
 }
+
+// latticeSites returns n sites on a square lattice of step deg degrees
+// centred on (lat, lon): training points crowded around one place.
+func latticeSites(n int, lat, lon, deg float64) (lats, lons []float64) {
+	k := int(math.Ceil(math.Sqrt(float64(n))))
+	for i := range n {
+		lons = append(lons, lon+(float64(i%k)-float64(k)/2+0.5)*deg)
+		lats = append(lats, lat+(float64(i/k)-float64(k)/2+0.5)*deg)
+	}
+	return lats, lons
+}
+
+// denseGrid is the grid of the dense-cluster tests and benchmark: side x
+// side cells of deg degrees whose north-west corner is (10 E, 50 N), and a
+// lattice of n sites of one cell's step at its centre.
+func denseGrid(tb testing.TB, n, side int, deg float64) (*Field, *geodesy.Index) {
+	tb.Helper()
+	north, west := 50.0, 10.0
+	lats, lons := latticeSites(n, north-deg*float64(side)/2, west+deg*float64(side)/2, deg)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return NewLonLat(ix, west, deg, north, -deg), ix
+}
+
+// TestDenseSitesHoldNearest checks denseSites, which keeps of a
+// super-tile's many candidates (a dense lattice of sites) those that may be
+// nearest to one of its cells: at every cell of every super-tile where it
+// gives a list, the smallest geodesic to the sites kept is the exact
+// distance of geodesy.Index.Nearest at the cell, bit for bit (an
+// independent query over all sites), and the list is a small part of the
+// candidates.
+func TestDenseSitesHoldNearest(t *testing.T) {
+	const side, deg = 240, 0.04
+	f, ix := denseGrid(t, 400, side, deg)
+	ll := f.ll
+	b := bracketer{f: f, ll: ll}
+	tiles, lists, kept, cands := 0, 0, 0, 0
+	for sr := 0; sr < side/SuperTile; sr++ {
+		st := ll.stencil(SuperTile/2, sr)
+		if !st.ok {
+			t.Fatalf("row %d: no stencil", sr)
+		}
+		rho := st.tmax*1.02 + 1
+		for sc := 0; sc < side/SuperTile; sc++ {
+			cr, cc := sr*SuperTile+SuperTile/2, sc*SuperTile+SuperTile/2
+			clat, clon := ll.lat(cr), ll.lon(cc)
+			_, d1 := ix.NearestBounds(clat, clon, 0)
+			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+			if len(b.cands) <= maxCandidates {
+				continue
+			}
+			tiles++
+			if !b.denseSites(clat, clon, st, rho) {
+				continue
+			}
+			lists++
+			kept += len(b.measured)
+			cands += len(b.cands)
+			for r := sr * SuperTile; r < (sr+1)*SuperTile; r++ {
+				for c := sc * SuperTile; c < (sc+1)*SuperTile; c++ {
+					lat, lon := ll.lat(r), ll.lon(c)
+					_, want := ix.Nearest(lat, lon, 0)
+					got := math.Inf(1)
+					for _, m := range b.measured {
+						got = math.Min(got, geodesy.Distance(lat, lon, m.slat, m.slon))
+					}
+					if math.Float64bits(got) != math.Float64bits(want) {
+						t.Fatalf("cell (%d, %d): %v over the %d sites kept of %d, Nearest %v", c, r, got, len(b.measured), len(b.cands), want)
+					}
+				}
+			}
+		}
+	}
+	t.Logf("%d super-tiles with more than %d candidates, %d with a list: %.1f sites kept of %.1f on average",
+		tiles, maxCandidates, lists, float64(kept)/float64(lists), float64(cands)/float64(lists))
+	if tiles < 200 || lists < tiles*3/4 || kept*10 > cands {
+		t.Fatalf("%d super-tiles with many candidates, %d lists keeping %d of %d sites: not the dense case", tiles, lists, kept, cands)
+	}
+}
+
+// TestBracketDenseLattice checks Bracket around a dense lattice of sites,
+// where most super-tiles have more candidates than the anchors measure and
+// their cells are computed exactly from denseSites' lists: against
+// Distances (Index.Nearest's values bit for bit) as in
+// TestBracketContainsDistance, the same brackets for several cuts into
+// blocks, and the same under a need mask.
+func TestBracketDenseLattice(t *testing.T) {
+	const side, deg = 240, 0.04
+	f, ix := denseGrid(t, 400, side, deg)
+	want := make([]float64, side*side)
+	New(ix, lonLatGrid(10, 50, deg)).Distances(0, 0, side, side, nil, want)
+	layout := testLayout(t, want, f.FarthestBound(side, side, 16))
+	need := make([]uint64, side*side)
+	for i := range need {
+		if i%7 != 2 {
+			need[i] = 1
+		}
+	}
+	var ref []float64
+	for _, bs := range [][2]int{{side, side}, {60, 45}, {17, 23}} {
+		for _, masked := range []bool{false, true} {
+			lo, hi := make([]float64, side*side), make([]float64, side*side)
+			var mask []uint64
+			if masked {
+				mask = need
+			}
+			walkTiles(side, side, bs[0], bs[1], mask, [][]float64{lo, hi}, func(x0, y0, w, h int, n []uint64, bufs [][]float64) {
+				f.Bracket(x0, y0, w, h, n, layout, bufs[0], bufs[1])
+			})
+			exact := checkBrackets(t, fmt.Sprintf("blocks %v masked %v", bs, masked), want, lo, hi, mask, layout)
+			if masked {
+				for i := range lo {
+					if need[i] != 0 && (math.Float64bits(lo[i]) != math.Float64bits(ref[i]) || math.Float64bits(hi[i]) != math.Float64bits(ref[i+len(lo)])) {
+						t.Fatalf("blocks %v masked: bracket of cell %d differs from the one-block cut", bs, i)
+					}
+				}
+				continue
+			}
+			t.Logf("blocks %v: %d of %d cells exact", bs, exact, len(want))
+			if exact < len(want)/4 {
+				t.Fatalf("blocks %v: %d of %d cells exact: not the dense case", bs, exact, len(want))
+			}
+			key := append(append([]float64{}, lo...), hi...)
+			if ref == nil {
+				ref = key
+				continue
+			}
+			for i := range key {
+				if math.Float64bits(key[i]) != math.Float64bits(ref[i]) {
+					t.Fatalf("blocks %v: bracket of cell %d differs from the one-block cut", bs, i%len(lo))
+				}
+			}
+		}
+	}
+}
+
+// BenchmarkFieldBracketDense is BenchmarkFieldBracket around a dense
+// cluster: a lattice of 1,000 and 4,000 sites one cell apart at the centre
+// of a grid of 2048 x 2048 cells of 0.005 degrees, where most super-tiles
+// have hundreds of candidates and most cells are computed exactly (one
+// geodesic each, from denseSites' few sites, where the index's query took
+// more).
+func BenchmarkFieldBracketDense(b *testing.B) {
+	const side, deg = 2048, 0.005
+	for _, sites := range []int{1000, 4000} {
+		f, ix := denseGrid(b, sites, side, deg)
+		// presence-like layout values: the distances at the sites' cells
+		var vals []float64
+		for k := range ix.Len() {
+			lat, lon := ix.Site(k)
+			_, d := ix.Nearest(50-(math.Floor((50-lat)/deg)+0.5)*deg, 10+(math.Floor((lon-10)/deg)+0.5)*deg, 0)
+			vals = append(vals, -d)
+		}
+		far := f.FarthestBound(side, side, 64)
+		l, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(metrics.FloorExp(far/4096)))
+		if err != nil {
+			b.Fatal(err)
+		}
+		layout := newFloorBins(l)
+		lo, hi := make([]float64, 240*240), make([]float64, 240*240)
+		b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
+			exact := 0
+			c0 := cpuNanos(b)
+			for b.Loop() {
+				exact = bracketBlocks(f, side, side, layout, lo, hi)
+			}
+			b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(side*side), "cpu-ns/cell")
+			b.ReportMetric(float64(exact)/float64(side*side), "exact-share")
+		})
+	}
+}

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"areasweep/extent"
+	"areasweep/extent/geodesy"
 	"areasweep/extent/nullmodel"
 	"areasweep/metrics"
 )
@@ -107,6 +108,65 @@ func BenchmarkNullBounds(b *testing.B) {
 	}
 	b.ReportMetric(float64(cpu)/float64(b.N)/float64(g.Width*g.Height), "cpu-ns/cell")
 	g.Close()
+}
+
+// BenchmarkNullBoundsDense is BenchmarkNullBounds around training points
+// crowded in one place: 2400 x 1800 cells of 0.00625 degrees (about 600
+// m) with a lattice of 1,000 training points one cell apart at the
+// centre, the layout of their own cells' values, as a pass makes it. Far
+// from the cluster every super-tile has hundreds of candidate sites and
+// most cells are computed exactly (nullmodel's denseSites); it reports the
+// CPU time per cell and the share of cells computed exactly.
+func BenchmarkNullBoundsDense(b *testing.B) {
+	const w, h, deg = 2400, 1800, 0.00625
+	west, north := -145.0, -35.0
+	g, err := extent.NewGrid(w, h, [6]float64{west, deg, 0, north, 0, -deg}, "EPSG:4326")
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	var lats, lons []float64
+	var pc []int
+	for i := range 1000 {
+		c, r := w/2-16+i%32, h/2-16+i/32
+		lon, lat := g.Centre(c, r)
+		lats, lons, pc = append(lats, lat), append(lons, lon), append(pc, r*w+c)
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := DistanceNull(g, ix)
+	v := NewVirtual(g, f)
+	vals, _, _ := v.Sample(g, pc)
+	layout, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(DistanceNullFloor(f, g, 4096)))
+	if err != nil {
+		b.Fatal(err)
+	}
+	bf := v.field.(BoundedField)
+	fb := newFloorBinner(layout)
+	lo := make([]float64, VirtualBlock*VirtualBlock)
+	hi := make([]float64, VirtualBlock*VirtualBlock)
+	var cpu int64
+	exact := 0
+	for b.Loop() {
+		exact = 0
+		t0 := cpuNow(b)
+		for y0 := 0; y0 < h; y0 += VirtualBlock {
+			for x0 := 0; x0 < w; x0 += VirtualBlock {
+				bw, bh := min(VirtualBlock, w-x0), min(VirtualBlock, h-y0)
+				bf.Bounds(x0, y0, bw, bh, nil, fb, lo, hi)
+				for i := range bw * bh {
+					if lo[i] == hi[i] {
+						exact++
+					}
+				}
+			}
+		}
+		cpu += cpuNow(b) - t0
+	}
+	b.ReportMetric(float64(cpu)/float64(b.N)/float64(w*h), "cpu-ns/cell")
+	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
 }
 
 // BenchmarkNullBoundsProjected is BenchmarkNullBounds on the study's
