@@ -27,16 +27,13 @@ const densifyMaxDepth = 16
 // lands more than that from the same point of the chord between its
 // transformed ends. An edge of a whole turn of longitude is left as it is
 // (see densifier). nil when no vertex was added (or the CRSs are one,
-// or the transformation cannot be made: Reproject then says why).
-func densifyEdges(geom *godal.Geometry, lsr *godal.SpatialRef, g *Grid) (*godal.Geometry, error) {
-	if lsr.IsSame(g.srs) {
+// or the transformation cannot be made: Reproject then says why). t is the
+// transformation from lsr to the grid's CRS, made once per layer by the
+// caller (nil in those two cases).
+func densifyEdges(geom *godal.Geometry, lsr *godal.SpatialRef, t *godal.Transform, g *Grid) (*godal.Geometry, error) {
+	if t == nil {
 		return nil, nil
 	}
-	t, err := godal.NewTransform(lsr, g.srs)
-	if err != nil {
-		return nil, nil
-	}
-	defer t.Close()
 	gt := g.GeoTransform
 	d := &densifier{t: t, sx: 1 / math.Abs(gt[1]), sy: 1 / math.Abs(gt[5]), geographic: g.Geographic, layerGeographic: lsr.Geographic()}
 	return mapRings(geom, lsr, func(r orb.Ring) (orb.Ring, bool, error) {

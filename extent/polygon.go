@@ -632,6 +632,25 @@ func fieldTypeName(t godal.FieldType) string {
 func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, g *Grid) ([]Unit, error) {
 	lsr, path := s.lsr, s.path
 	units := make([]Unit, 0, len(order))
+	// One transformation and one centre cell for the whole layer: making
+	// a transformation looks it up in PROJ's database (tens of
+	// milliseconds), which per unit took minutes for a layer of thousands
+	// of units. Without one (the CRSs are one, or none can be made),
+	// Reproject below does as before and says why it fails.
+	var t *godal.Transform
+	if !lsr.IsSame(g.srs) {
+		if tt, err := godal.NewTransform(lsr, g.srs); err == nil {
+			t = tt
+			defer t.Close()
+		}
+	}
+	var centre *godal.Geometry
+	if lsr.Geographic() && !g.Geographic {
+		if c, err := centreCell(g, lsr, false); err == nil {
+			centre = c
+			defer centre.Close()
+		}
+	}
 	for _, id := range order {
 		geom := byID[id]
 		if lsr.Geographic() && !g.Geographic {
@@ -644,19 +663,23 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 				geom = d
 			}
 		}
-		hadCentre := false
-		if lsr.Geographic() && !g.Geographic {
-			hadCentre = holdsCentreCell(geom, g, lsr)
-		}
+		// Whether geom holds the whole of the raster's centre cell.
+		hadCentre := centre != nil && geom.Contains(centre)
 		// An edge is a straight line in the layer's CRS: vertices are
 		// added along it so that, transformed, it still follows that
 		// line's image (densifyEdges), not the chord between its ends.
-		if d, err := densifyEdges(geom, lsr, g); err != nil {
+		if d, err := densifyEdges(geom, lsr, t, g); err != nil {
 			return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
 		} else if d != nil {
 			geom = d
 		}
-		if err := geom.Reproject(g.srs); err != nil {
+		var err error
+		if t != nil {
+			err = geom.Transform(t)
+		} else {
+			err = geom.Reproject(g.srs)
+		}
+		if err != nil {
 			return nil, fmt.Errorf("extent: %s: cannot be reprojected to the raster CRS (%s); check that the layer's CRS is right", unitName(path, id), gdalmsg.Cause(err.Error()))
 		}
 		if hadCentre && !holdsCentre(geom, g) {
@@ -706,17 +729,6 @@ func centreCell(g *Grid, srs *godal.SpatialRef, point bool) (*godal.Geometry, er
 		}
 	}
 	return cell, nil
-}
-
-// holdsCentreCell reports whether geom, in the layer's CRS srs, holds the
-// whole of the raster's centre cell.
-func holdsCentreCell(geom *godal.Geometry, g *Grid, srs *godal.SpatialRef) bool {
-	cell, err := centreCell(g, srs, false)
-	if err != nil {
-		return false
-	}
-	defer cell.Close()
-	return geom.Contains(cell)
 }
 
 // holdsCentre reports whether geom, in the grid's CRS, holds the centre

@@ -12,6 +12,7 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"syscall"
 	"time"
 
 	"codeberg.org/go-pdf/fpdf"
@@ -219,6 +220,12 @@ func fontTempDirError(msg string) error {
 	cause := strings.TrimPrefix(msg, pdfFontFailed)
 	if i := strings.LastIndex(cause, ": "); i >= 0 {
 		cause = cause[i+2:] // the system's reason, without the library's temporary path
+	}
+	if cause == syscall.EFBIG.Error() {
+		// The process's limit of file size (ulimit -f), not the folder:
+		// wrapped so that the caller's words name the limit
+		// (outdir.FileSizeAdvice).
+		return fmt.Errorf("the PDF figures' font data could not be written in the temporary folder %s: %w", os.TempDir(), syscall.EFBIG)
 	}
 	return fmt.Errorf("the PDF figures need the temporary folder %s (TMPDIR), which cannot be used: %s; set TMPDIR to a folder you can write to, with free space", os.TempDir(), cause)
 }

@@ -19,8 +19,16 @@ __attribute__((constructor)) static void areasweepAddressFloor(void) {
 		"areasweep: the process may reserve at most %llu MiB of address space (its limit of virtual memory: ulimit -v, or a cluster job's such as h_vmem), "
 		"and areasweep needs at least %llu MiB to start: Go's runtime, GDAL and the C heap reserve most of it without using it. "
 		"Raise the limit (ulimit -v %llu, in KiB; more for large rasters, as a warning then says) or remove it (ulimit -v unlimited); "
-		"a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space\n",
+		"a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space",
 		(unsigned long long)r.rlim_cur >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 10);
+	if (r.rlim_max != RLIM_INFINITY && r.rlim_max < AREASWEEP_MIN_ADDRESS_SPACE) {
+		// The hard limit is below the floor too: but as root, ulimit -v
+		// cannot raise it, and the advice above alone would fail.
+		fprintf(stderr,
+			"; its hard limit (ulimit -Hv) is %llu MiB, which only the system's administrator, or a cluster job that asks for more, can raise",
+			(unsigned long long)r.rlim_max >> 20);
+	}
+	fputc('\n', stderr);
 	_exit(2);
 }
 */

@@ -73,3 +73,32 @@ func TestFileSizeLimit(t *testing.T) {
 		}
 	}
 }
+
+// TestAddressSpaceFloorHardLimit: with the hard limit of virtual memory
+// below minAddressSpace too (sh's ulimit -v sets both; -S the soft one
+// alone), the message says so, since ulimit -v cannot raise a hard limit
+// (root aside) and the advice to raise it alone would fail; a soft limit
+// below the floor under a higher hard one keeps the plain advice.
+func TestAddressSpaceFloorHardLimit(t *testing.T) {
+	// The hard limits in MiB: 1,700,000 and 1,800,000 KiB >> 10.
+	for _, tc := range []struct {
+		set, hard string // hard: "" when the message must not name it
+	}{
+		{"ulimit -v 1700000", "its hard limit (ulimit -Hv) is 1660 MiB"},
+		{"ulimit -S -v 1700000 && ulimit -H -v 1800000", "its hard limit (ulimit -Hv) is 1757 MiB"},
+		{"ulimit -S -v 1700000", ""},
+		{"ulimit -S -v 1700000 && ulimit -H -v 3000000", ""},
+	} {
+		cmd := exec.Command("sh", "-c", tc.set+` && exec "$0" "$@"`, areasweepBin, "--help")
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		msg := se.String()
+		if code != 2 || strings.Count(msg, "\n") != 1 || !strings.Contains(msg, "ulimit -v 2097152") {
+			t.Errorf("%s: exit %d, stderr %q; want exit 2 and one line naming ulimit -v 2097152", tc.set, code, msg)
+		}
+		if got := strings.Contains(msg, "hard limit"); got != (tc.hard != "") || !strings.Contains(msg, tc.hard) {
+			t.Errorf("%s: stderr %q, want it to name the hard limit as %q", tc.set, msg, tc.hard)
+		}
+	}
+}
