@@ -627,6 +627,10 @@ func fieldTypeName(t godal.FieldType) string {
 	return "values of an unknown kind"
 }
 
+// newTransform makes a transformation between two CRSs (a test counts
+// the calls: onGrid makes one per layer).
+var newTransform = godal.NewTransform
+
 // onGrid puts each id's geometry in the grid's CRS and returns the units
 // in order.
 func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, g *Grid) ([]Unit, error) {
@@ -639,7 +643,7 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 	// Reproject below does as before and says why it fails.
 	var t *godal.Transform
 	if !lsr.IsSame(g.srs) {
-		if tt, err := godal.NewTransform(lsr, g.srs); err == nil {
+		if tt, err := newTransform(lsr, g.srs); err == nil {
 			t = tt
 			defer t.Close()
 		}
