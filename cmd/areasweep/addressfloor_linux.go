@@ -22,8 +22,9 @@ __attribute__((constructor)) static void areasweepAddressFloor(void) {
 		"a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space",
 		(unsigned long long)r.rlim_cur >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 20, AREASWEEP_MIN_ADDRESS_SPACE >> 10);
 	if (r.rlim_max != RLIM_INFINITY && r.rlim_max < AREASWEEP_MIN_ADDRESS_SPACE) {
-		// The hard limit is below the floor too: but as root, ulimit -v
-		// cannot raise it, and the advice above alone would fail.
+		// The hard limit is below the floor too: ulimit -v cannot raise
+		// the soft limit past it (only root can raise a hard limit), so
+		// the advice above alone would fail.
 		fprintf(stderr,
 			"; its hard limit (ulimit -Hv) is %llu MiB, which only the system's administrator, or a cluster job that asks for more, can raise",
 			(unsigned long long)r.rlim_max >> 20);
