@@ -6,6 +6,7 @@
 package outfile
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -61,9 +62,21 @@ func WriteFrom(path string, perm os.FileMode, fill func(w io.Writer) error) erro
 		if tmp != "" {
 			os.Remove(tmp)
 		}
-		return fmt.Errorf("write %s: %w", path, err)
+		return writeError(path, err)
 	}
 	return nil
+}
+
+// writeError is err, a failure to write the file at path, naming path:
+// a failure on the temporary file (a path error, as a full disk or the
+// limit of file size gives) becomes one on path itself, so that the
+// temporary file's name, which the user never sees, is never reported.
+func writeError(path string, err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) && IsTemp(filepath.Base(pe.Path)) {
+		return &os.PathError{Op: pe.Op, Path: path, Err: pe.Err}
+	}
+	return fmt.Errorf("write %s: %w", path, err)
 }
 
 // writeTemp writes what fill writes into a temporary file beside path,
@@ -117,7 +130,7 @@ func WriteAll(files []File, perm os.FileMode) error {
 		})
 		if err != nil {
 			removeTmps(0)
-			return fmt.Errorf("write %s: %w", f.Path, err)
+			return writeError(f.Path, err)
 		}
 		tmps = append(tmps, tmp)
 	}

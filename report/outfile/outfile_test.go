@@ -167,3 +167,22 @@ func TestWriteAll(t *testing.T) {
 		}
 	}
 }
+
+// TestWriteErrorNamesTheFile: a failure on Write's temporary file is
+// reported on the file's own path (the temporary name is never shown),
+// keeping the system's reason for errors.Is; any other failure is
+// wrapped with the path.
+func TestWriteErrorNamesTheFile(t *testing.T) {
+	tmp := &os.PathError{Op: "write", Path: "/out/.results.json.tmp-123456", Err: syscall.EFBIG}
+	err := writeError("/out/results.json", tmp)
+	if got, want := err.Error(), "write /out/results.json: file too large"; got != want {
+		t.Errorf("temporary file's failure: %q, want %q", got, want)
+	}
+	if !errors.Is(err, syscall.EFBIG) {
+		t.Errorf("%v: the reason is lost", err)
+	}
+	other := errors.New("fill failed")
+	if got, want := writeError("/out/results.json", other).Error(), "write /out/results.json: fill failed"; got != want {
+		t.Errorf("other failure: %q, want %q", got, want)
+	}
+}

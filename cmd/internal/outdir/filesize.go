@@ -3,6 +3,8 @@ package outdir
 import (
 	"errors"
 	"fmt"
+	"os"
+	"path/filepath"
 	"strings"
 	"syscall"
 )
@@ -15,7 +17,8 @@ const sqliteIOError = "disk I/O error"
 
 // FileSizeAdvice returns what to add to the words of err, a failed write,
 // when it may come from the process's limit of file size (RLIMIT_FSIZE:
-// ulimit -f, or a cluster job's): the limit and how to raise it; "" when
+// ulimit -f, or a cluster job's): the limit, the file's name when err
+// holds it, and how to raise it; "" when
 // the process has no such limit or err is of another kind. A write past
 // the limit fails with "file too large" (EFBIG), and GDAL's GeoPackage
 // driver reports it as SQLite's "disk I/O error", neither of which names
@@ -29,7 +32,15 @@ func FileSizeAdvice(err error) string {
 	if err := syscall.Getrlimit(syscall.RLIMIT_FSIZE, &r); err != nil || r.Cur > 1<<62 { // RLIM_INFINITY is all ones
 		return ""
 	}
-	return fmt.Sprintf(" (this process may not write a file larger than %s: its limit of file size, ulimit -f, is set; raise it, for example with ulimit -f unlimited)", sizeWords(int64(r.Cur)))
+	// The file, when the error names it (the system's "file too large"
+	// does not; Cause drops the path): its name alone, since the path
+	// may be the run's hidden staging folder.
+	which := ""
+	var pe *os.PathError
+	if errors.As(err, &pe) && pe.Path != "" {
+		which = fmt.Sprintf(", and %s needs more", filepath.Base(pe.Path))
+	}
+	return fmt.Sprintf(" (this process may not write a file larger than %s%s: its limit of file size, ulimit -f, is set; raise it, for example with ulimit -f unlimited)", sizeWords(int64(r.Cur)), which)
 }
 
 // sizeWords is n bytes in KiB, MiB or GiB, whichever reads best.

@@ -10,8 +10,9 @@ import (
 )
 
 // TestFileSizeAdvice: under a limit of file size, a write that failed
-// with EFBIG (wrapped, as a PathError) or with SQLite's "disk I/O error"
-// gets the limit and what to do; a full disk or any other failure, and
+// with EFBIG (bare, or in a PathError, wrapped or not, which also names
+// the file) or with SQLite's "disk I/O error" gets the limit and what to
+// do; a full disk or any other failure, and
 // any failure without a limit, gets nothing. The test sets a large soft
 // limit (1 TiB, far above what it writes) and puts the old one back.
 func TestFileSizeAdvice(t *testing.T) {
@@ -31,12 +32,14 @@ func TestFileSizeAdvice(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := " (this process may not write a file larger than 1024.0 GiB: its limit of file size, ulimit -f, is set; raise it, for example with ulimit -f unlimited)"
+	named := " (this process may not write a file larger than 1024.0 GiB, and results.json needs more: its limit of file size, ulimit -f, is set; raise it, for example with ulimit -f unlimited)"
 	for _, tc := range []struct {
 		err  error
 		want string
 	}{
-		{efbig, want},
-		{fmt.Errorf("writing: %w", efbig), want},
+		{efbig, named},
+		{fmt.Errorf("writing: %w", efbig), named},
+		{syscall.EFBIG, want},
 		{sqlite, want},
 		{enospc, ""},
 		{errors.New("permission denied"), ""},

@@ -442,7 +442,7 @@ func WriteFailedIn(out, stage string, err error) error {
 	if full {
 		what += " (free some space on that disk, or give --out a folder on another one)"
 	} else {
-		what += outdir.FileSizeAdvice(cause)
+		what += outdir.FileSizeAdvice(err)
 	}
 	return fmt.Errorf("writing the results into %s failed: %s; nothing in it was changed", out, what)
 }
