@@ -68,8 +68,19 @@ type Raster struct {
 	// scale and offset turn stored values into model values
 	// (value = stored*scale + offset), as the band declares.
 	scale, offset float64
-	// width, height and the block size lay out the pass's blocks.
+	// width, height and the block size lay out the pass's blocks: the
+	// band's own blocks, or windows of them (readWindows) when they are
+	// strips too large to read whole; fileW and fileH are the band's.
 	width, height, blockW, blockH int
+	fileW, fileH                  int
+	// windowed: the blocks are windows of whole rows of the band's
+	// strips, read through this handle alone (readMu) while GDAL's block
+	// cache holds the strips they lie in (holdCache: held bytes, ended by
+	// releases).
+	windowed bool
+	readMu   sync.Mutex
+	held     int64
+	releases []func()
 	// narrow: every stored value is a float32 (the band's type is Byte,
 	// Int8, UInt16, Int16 or Float32), so a kept block can be float32.
 	narrow bool
@@ -103,11 +114,14 @@ type Source interface {
 	Close() error
 }
 
-// gdalSource reads band 1 of its own handle on a raster file.
+// gdalSource reads band 1 of its own handle on a raster file, or, when
+// mu is set, of the Raster's handle, which its sources share (ds is then
+// nil: not theirs to close).
 type gdalSource struct {
 	path string
 	ds   *godal.Dataset
 	band godal.Band
+	mu   *sync.Mutex
 }
 
 func openGDALSource(path string) (Source, error) {
@@ -134,13 +148,22 @@ func (s *gdalSource) readBlock32(x0, y0, w, h int, buf []float32) error {
 }
 
 func (s *gdalSource) read(x0, y0, w, h int, buf any) error {
+	if s.mu != nil {
+		s.mu.Lock()
+		defer s.mu.Unlock()
+	}
 	if err := s.band.Read(x0, y0, buf, w, h); err != nil {
 		return blockError(s.path, x0, y0, err)
 	}
 	return nil
 }
 
-func (s *gdalSource) Close() error { return s.ds.Close() }
+func (s *gdalSource) Close() error {
+	if s.ds == nil {
+		return nil
+	}
+	return s.ds.Close()
+}
 
 // blockError words GDAL's error err reading the block at column x0, row
 // y0 of the raster at path: a library that ran out of memory is a
@@ -193,7 +216,8 @@ func Open(path string) (*Raster, error) {
 	r.nodata, r.hasNodata = NoData(r.band)
 	r.near = newNoDataNear(st.DataType, r.nodata)
 	r.scale, r.offset = st.Scale, st.Offset
-	r.width, r.height, r.blockW, r.blockH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
+	r.width, r.height, r.fileW, r.fileH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
+	r.blockW, r.blockH, r.windowed = readWindows(r.width, r.fileW, r.fileH)
 	switch st.DataType {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
 		r.narrow = true
@@ -201,6 +225,9 @@ func Open(path string) (*Raster, error) {
 	r.signedByte = st.DataType == godal.Byte && r.band.Metadata("PIXELTYPE", godal.Domain("IMAGE_STRUCTURE")) == "SIGNEDBYTE"
 	r.dtype = st.DataType
 	r.open = func() (Source, error) { return openGDALSource(path) }
+	if r.windowed {
+		r.open = func() (Source, error) { return r.sharedSource(), nil }
+	}
 	return r, nil
 }
 
@@ -311,6 +338,7 @@ func (r *Raster) NoDataUnheld() string {
 func (r *Raster) Close() error {
 	r.kept.release()
 	r.kept = nil
+	r.releaseCache()
 	return r.ds.Close()
 }
 
@@ -370,9 +398,10 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 	nb := len(starts) - 1
 	r.kept.release()
 	r.kept = nil
-	if r.keep > 0 {
+	if r.keep > 0 && !r.windowed {
 		// The slab holds every block with a point in the kept rows, or
-		// as many as the budget allows.
+		// as many as the budget allows. A windowed raster's strips stay
+		// decoded in GDAL's cache for the pass instead (holdCache).
 		var need int64
 		for k := range nb {
 			bi := blockOf(cells[order[starts[k]]])
@@ -384,6 +413,8 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 		r.kept = newKeptBlocks(r.keep, need, r.keepRows, g.Width, g.Height, bw, bh)
 	}
 	workers := min(runtime.GOMAXPROCS(0), nb)
+	// Held until the pass ends: the strips decoded here serve it.
+	r.holdCache(readers(0))
 	errs := make([]error, max(workers, 1))
 	var wg sync.WaitGroup
 	for w := range workers {
@@ -475,16 +506,16 @@ type planned interface {
 // back through free. It stops at the first read error.
 func (r *Raster) each(out chan<- block, free chan []float64) error {
 	defer close(out)
-	st := r.band.Structure()
-	for b, ok := st.FirstBlock(), true; ok; b, ok = b.Next() {
+	src := r.sharedSource()
+	return r.eachBlock(func(x0, y0, w, h int) error {
 		buf := <-free
-		buf = buf[:b.W*b.H]
-		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return blockError(r.Path, b.X0, b.Y0, err)
+		buf = buf[:w*h]
+		if err := src.ReadBlock(x0, y0, w, h, buf); err != nil {
+			return err
 		}
-		out <- block{x0: b.X0, y0: b.Y0, w: b.W, h: b.H, buf: buf}
-	}
-	return nil
+		out <- block{x0: x0, y0: y0, w: w, h: h, buf: buf}
+		return nil
+	})
 }
 
 // Blocks returns the number of blocks of the raster, for progress.
@@ -500,8 +531,8 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (*ext
 	rec := newValidRec(v, r.width, r.blockW, r.blockH)
 	blocks := make(chan block)
 	free := make(chan []float64, 1)
-	st := r.band.Structure()
-	free <- make([]float64, st.BlockSizeX*st.BlockSizeY)
+	free <- make([]float64, r.blockW*r.blockH)
+	defer r.holdCache(1)()
 	errc := make(chan error, 1)
 	go func() { errc <- r.each(blocks, free) }()
 	done, total := 0, r.Blocks()
@@ -671,6 +702,8 @@ type plan struct {
 func (r *Raster) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt Options) ([]*metrics.Accumulator, Stats, error) {
 	kept := r.kept
 	r.kept = nil // this pass's alone: unmapped when it returns
+	r.holdCache(readers(opt.Workers))
+	defer r.releaseCache()
 	accs, st, err := score(plan{width: r.width, height: r.height, blockW: r.blockW, blockH: r.blockH, open: r.open, decode: r.decode, kept: kept},
 		g, fam, fam.Groups(), layout, opt)
 	r.reused = 0

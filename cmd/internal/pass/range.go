@@ -1,7 +1,7 @@
 package pass
 
 import (
-	"fmt"
+	"errors"
 )
 
 // HasData reports whether the band holds a valid model value (not no
@@ -13,28 +13,39 @@ import (
 // run that cannot start, which should not read a whole continent of no
 // data to word its message.
 func (r *Raster) HasData(maxCells int) (any, known bool, err error) {
-	st := r.band.Structure()
 	var buf []float64
 	read := 0
-	for b, more := st.FirstBlock(), true; more; b, more = b.Next() {
+	src := r.sharedSource()
+	defer r.holdCache(1)()
+	errFound, errTooMany := errors.New("found"), errors.New("too many")
+	err = r.eachBlock(func(x0, y0, w, h int) error {
 		if read >= maxCells {
-			return false, false, nil
+			return errTooMany
 		}
-		n := b.W * b.H
+		n := w * h
 		read += n
 		if cap(buf) < n {
 			buf = make([]float64, n)
 		}
 		buf = buf[:n]
-		if err := r.band.Read(b.X0, b.Y0, buf, b.W, b.H); err != nil {
-			return false, false, fmt.Errorf("pass: read %s block at column %d row %d: %w", r.Path, b.X0, b.Y0, err)
+		if err := src.ReadBlock(x0, y0, w, h, buf); err != nil {
+			return err
 		}
 		r.decode(buf)
 		for _, v := range buf {
 			if r.valid(v) {
-				return true, true, nil
+				return errFound
 			}
 		}
+		return nil
+	})
+	switch err {
+	case nil:
+		return false, true, nil
+	case errFound:
+		return true, true, nil
+	case errTooMany:
+		return false, false, nil
 	}
-	return false, true, nil
+	return false, false, err
 }

@@ -47,6 +47,8 @@ func Estimate(o Options) (int64, error) {
 	}
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), 512*512, points)
 	est.Resamples = o.resampleMemo(o.maxExtents(), points)
+	hold, _ := o.readHold(workers)
+	est.Blocks += hold
 	return est.Total(), nil
 }
 

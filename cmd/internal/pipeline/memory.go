@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pass"
 	"areasweep/extent"
 	"areasweep/metrics"
@@ -39,7 +40,9 @@ func (m memoryUse) Total() int64 {
 //	              plus GDAL's block cache (extent.BlockCacheBytes: 16 MB
 //	              unless GDAL_CACHEMAX says otherwise), plus (added by checkMemory
 //	              for a run that scores) the keptBlockBytes of blocks a
-//	              model's sampling keeps for its pass
+//	              model's sampling keeps for its pass, plus (added by
+//	              checkMemory and Estimate) the strips of a raster stored
+//	              in strips too large to read whole (Options.readHold)
 //	points        about 400 bytes per occurrence record (records, lists, results)
 //	resamples     the paired analysis's memo of each model x extent's scores
 //	              on every resample (metrics: 8 (E values + thresholds + 1)
@@ -72,6 +75,23 @@ func (o *Options) resampleMemo(extents, points int) int64 {
 	// where one of points would not.
 	table := min(int64(max(points, 0))*int64(max(o.Iterations, 0)), metrics.MaxDrawTableBytes)
 	return models*int64(extents)*int64(max(o.Iterations, 0))*perResample + table
+}
+
+// readHold returns the most memory that reading one of the rasters (the
+// models and --null rasters, read one at a time) holds beyond the
+// workers' buffers and GDAL's block cache: the strips of a raster stored
+// in strips too large to read whole (pass.ReadHold), 0 for tiled
+// rasters. A raster that cannot be opened counts 0 (the run then says
+// why).
+func (o *Options) readHold(workers int) (most int64, path string) {
+	for _, m := range append(append([]string{}, o.Models...), o.Nulls...) {
+		if _, p, err := inputs.ParseNamedPath(m); err == nil {
+			if b := pass.ReadHold(p, max(workers, 1)); b > most {
+				most, path = b, p
+			}
+		}
+	}
+	return most, path
 }
 
 // maxExtents is an upper bound on the members the settings can make,
@@ -154,15 +174,21 @@ func (s *Study) checkMemory() error {
 	if !o.ExtentsOnly {
 		est.Blocks += keptBlockBytes
 	}
+	hold, stripped := o.readHold(workers)
+	est.Blocks += hold
 	s.warnAddressSpace(est.Total(), extent.AddressSpaceLimit(), selfStatus("VmSize:"))
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
+	strips := ""
+	if hold > 0 {
+		strips = fmt.Sprintf(", reading %s, stored in strips of the whole width that GDAL decodes whole, holds %s (a tiled copy is read with a few MB: gdal_translate -co TILED=YES -co COMPRESS=DEFLATE %s TILED.tif)", stripped, gib(hold), stripped)
+	}
 	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs up to %s for the cells with data (at most 1 bit per cell) and the extents' row runs, "+
-		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
+		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples%s; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers, extents or --iterations",
-		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples)))
+		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples), strips))
 }
 
 func gib(b int64) string {

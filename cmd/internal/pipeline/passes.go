@@ -311,11 +311,13 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 	if s.rows != nil {
 		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
 	}
-	blocks := fmt.Sprintf("%d blocks", p.src.Blocks())
-	if r, ok := p.src.(*pass.Raster); ok && r.Reused() > 0 {
-		blocks += fmt.Sprintf(", %d of them decoded when the points were sampled", r.Reused())
+	blocks := fmt.Sprintf("block by block (%d blocks)", p.src.Blocks())
+	if r, ok := p.src.(*pass.Raster); ok && r.Strips() != "" {
+		blocks = r.Strips()
+	} else if ok && r.Reused() > 0 {
+		blocks = fmt.Sprintf("block by block (%d blocks, %d of them decoded when the points were sampled)", p.src.Blocks(), r.Reused())
 	}
-	s.logf("%s: %s, block by block (%s), and added to the sums of all %d extents in %.2f s", m.Name, how, blocks, len(fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: %s, %s, and added to the sums of all %d extents in %.2f s", m.Name, how, blocks, len(fam.Members), time.Since(t0).Seconds())
 	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: opt.Preview}, nil
 }
 
