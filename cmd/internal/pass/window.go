@@ -70,16 +70,20 @@ func (r *Raster) cacheBytes(workers int) int64 {
 	return int64(span) * r.stripBytes()
 }
 
-// ReadHoldBytes returns the memory the raster's reads hold beyond the
-// workers' buffers and GDAL's own block cache: for a windowed raster, the
-// strips the cache holds decoded (cacheBytes) and one strip's compressed
-// bytes, which the library reads whole before decoding it (taken as
-// large as the strip decoded); 0 for a raster read in its own blocks.
-func (r *Raster) ReadHoldBytes(workers int) int64 {
-	if !r.windowed {
-		return 0
+// ReadBytes returns the memory that workers workers reading the raster
+// hold: each worker's buffer of float64 values for a block the pass reads
+// and, while GDAL decodes it, the block as stored (a tile of 4096 x 4096
+// Float32 cells: 128 MiB and 64 MiB a worker); for a windowed raster,
+// instead of the blocks as stored, the strips GDAL's cache holds decoded
+// (cacheBytes) and one strip's compressed bytes, which the library reads
+// whole before decoding it (taken as large as the strip decoded).
+func (r *Raster) ReadBytes(workers int) int64 {
+	workers = max(workers, 1)
+	b := int64(workers) * int64(r.blockW) * int64(r.blockH) * 8
+	if r.windowed {
+		return b + r.cacheBytes(workers) + r.stripBytes()
 	}
-	return r.cacheBytes(workers) + r.stripBytes()
+	return b + int64(workers)*int64(r.fileW)*int64(r.fileH)*int64(max(r.dtype.Size(), 1))
 }
 
 // holdCache raises GDAL's block cache for workers readers of a windowed
@@ -145,15 +149,14 @@ func (r *Raster) Strips() string {
 		r.Blocks(), r.blockH, strips, s, r.fileH, float64(r.stripBytes())/1e6)
 }
 
-// ReadHold returns the memory that reading the raster at path on workers
-// workers holds beyond the workers' buffers and GDAL's own block cache
-// (Raster.ReadHoldBytes), 0 when the raster cannot be opened (the run
-// then says why when it opens it).
-func ReadHold(path string, workers int) int64 {
+// ReadBytes returns Raster.ReadBytes of the raster at path, and whether
+// it is read in windows of its strips; 0 when the raster cannot be
+// opened (the run then says why when it opens it).
+func ReadBytes(path string, workers int) (n int64, windowed bool) {
 	r, err := Open(path)
 	if err != nil {
-		return 0
+		return 0, false
 	}
 	defer r.Close()
-	return r.ReadHoldBytes(workers)
+	return r.ReadBytes(workers), r.windowed
 }

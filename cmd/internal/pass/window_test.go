@@ -161,3 +161,34 @@ func validRows(v *extent.Valid) []byte {
 	}
 	return b
 }
+
+// TestReadBytes: the memory ReadBytes counts for 2 workers on a 300 x 200
+// Float32 raster (the cap lowered to windows of 300 x 16 cells), worked
+// by hand from its rule: tiles of 64 x 64, a buffer of 64 x 64 float64
+// values and a tile as stored a worker, 2 x 4096 x (8 + 4) = 98,304; one
+// strip, 2 windows of 300 x 16 float64 values (76,800), the strip as
+// stored (300 x 200 x 4 = 240,000) and its compressed bytes counted as
+// much: 556,800; strips of 70 rows, 5 windows a strip, so 2 windows in
+// flight meet at most 2 strips of 84,000 bytes, and a third for the
+// compressed bytes: 76,800 + 252,000 = 328,800.
+func TestReadBytes(t *testing.T) {
+	defer func(n int) { readCells = n }(readCells)
+	readCells = 300 * 16
+	dir := t.TempDir()
+	value := func(r, c int) float32 { return float32(r + c) }
+	for _, tc := range []struct {
+		name string
+		opts []string
+		want int64
+	}{
+		{"tiles", []string{"TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64"}, 98304},
+		{"one strip", []string{"BLOCKYSIZE=200", "COMPRESS=DEFLATE"}, 556800},
+		{"strips of 70 rows", []string{"BLOCKYSIZE=70", "COMPRESS=DEFLATE"}, 328800},
+	} {
+		path := filepath.Join(dir, fmt.Sprintf("%d.tif", len(tc.opts)+len(tc.name)))
+		writeGridRaster(t, path, 300, 200, false, value, tc.opts...)
+		if got, _ := ReadBytes(path, 2); got != tc.want {
+			t.Errorf("%s: ReadBytes %d, want %d", tc.name, got, tc.want)
+		}
+	}
+}

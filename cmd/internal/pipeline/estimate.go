@@ -45,10 +45,9 @@ func Estimate(o Options) (int64, error) {
 	if o.ExtentsOnly {
 		workers = 0
 	}
-	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), 512*512, points)
+	reads, _ := o.readBytes(workers)
+	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), reads, points)
 	est.Resamples = o.resampleMemo(o.maxExtents(), points)
-	hold, _ := o.readHold(workers)
-	est.Blocks += hold
 	return est.Total(), nil
 }
 

@@ -36,13 +36,12 @@ func (m memoryUse) Total() int64 {
 //	accumulators  workers x (extents + pass.MaxShared) x (2 x layout values
 //	              + 1 + 4096) bins x 16 bytes (each member's, and the shared
 //	              sums of a block)
-//	blocks        workers x one block buffer of blockCells float64 values,
-//	              plus GDAL's block cache (extent.BlockCacheBytes: 16 MB
-//	              unless GDAL_CACHEMAX says otherwise), plus (added by checkMemory
-//	              for a run that scores) the keptBlockBytes of blocks a
-//	              model's sampling keeps for its pass, plus (added by
-//	              checkMemory and Estimate) the strips of a raster stored
-//	              in strips too large to read whole (Options.readHold)
+//	blocks        readBytes (what reading the model rasters, one at a
+//	              time, holds: Options.readBytes), plus GDAL's block cache
+//	              (extent.BlockCacheBytes: 16 MB unless GDAL_CACHEMAX says
+//	              otherwise), plus (added by checkMemory for a run that
+//	              scores) the keptBlockBytes of blocks a model's sampling
+//	              keeps for its pass
 //	points        about 400 bytes per occurrence record (records, lists, results)
 //	resamples     the paired analysis's memo of each model x extent's scores
 //	              on every resample (metrics: 8 (E values + thresholds + 1)
@@ -52,13 +51,13 @@ func (m memoryUse) Total() int64 {
 //	              resampleMemo
 //
 // layoutValues is the number of presence values plus fixed thresholds.
-func estimateMemory(cells, rows int64, extents, workers, layoutValues, blockCells, points int) memoryUse {
+func estimateMemory(cells, rows int64, extents, workers, layoutValues int, readBytes int64, points int) memoryUse {
 	bins := int64(2*layoutValues+1) + histBins
 	return memoryUse{
 		Runs:         int64(extents) * rows * 40,
 		Valid:        extent.MaxValidBytes(int(cells/max(rows, 1)), int(rows)),
 		Accumulators: int64(workers) * int64(extents+pass.MaxShared) * bins * 16,
-		Blocks:       int64(workers)*int64(blockCells)*8 + extent.BlockCacheBytes(physicalMemory()),
+		Blocks:       readBytes + extent.BlockCacheBytes(physicalMemory()),
 		Points:       400 * int64(points),
 	}
 }
@@ -77,21 +76,26 @@ func (o *Options) resampleMemo(extents, points int) int64 {
 	return models*int64(extents)*int64(max(o.Iterations, 0))*perResample + table
 }
 
-// readHold returns the most memory that reading one of the rasters (the
-// models and --null rasters, read one at a time) holds beyond the
-// workers' buffers and GDAL's block cache: the strips of a raster stored
-// in strips too large to read whole (pass.ReadHold), 0 for tiled
-// rasters. A raster that cannot be opened counts 0 (the run then says
-// why).
-func (o *Options) readHold(workers int) (most int64, path string) {
+// readBytes returns the most memory that reading one of the rasters (the
+// models and --null rasters, read one at a time) on workers workers holds
+// (pass.ReadBytes), at least a buffer of 512 x 512 float64 values per
+// worker (the distance-only null's blocks, its bounds included, take
+// less), and the raster that holds the most when it is read in windows of
+// strips that GDAL decodes whole, "" otherwise. A raster that cannot be
+// opened counts 0 (the run then says why).
+func (o *Options) readBytes(workers int) (most int64, stripped string) {
+	most = int64(workers) * 512 * 512 * 8
 	for _, m := range append(append([]string{}, o.Models...), o.Nulls...) {
 		if _, p, err := inputs.ParseNamedPath(m); err == nil {
-			if b := pass.ReadHold(p, max(workers, 1)); b > most {
-				most, path = b, p
+			if b, windowed := pass.ReadBytes(p, workers); b > most {
+				most, stripped = b, ""
+				if windowed {
+					stripped = p
+				}
 			}
 		}
 	}
-	return most, path
+	return most, stripped
 }
 
 // maxExtents is an upper bound on the members the settings can make,
@@ -169,21 +173,20 @@ func (s *Study) checkMemory() error {
 		workers = 0
 	}
 	layout := len(s.points) + len(o.Thresholds)
-	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, 512*512, len(s.points))
+	reads, stripped := o.readBytes(workers)
+	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, reads, len(s.points))
 	est.Resamples = o.resampleMemo(o.maxExtents(), len(s.points))
 	if !o.ExtentsOnly {
 		est.Blocks += keptBlockBytes
 	}
-	hold, stripped := o.readHold(workers)
-	est.Blocks += hold
 	s.warnAddressSpace(est.Total(), extent.AddressSpaceLimit(), selfStatus("VmSize:"))
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
 	strips := ""
-	if hold > 0 {
-		strips = fmt.Sprintf(", reading %s, stored in strips of the whole width that GDAL decodes whole, holds %s (a tiled copy is read with a few MB: gdal_translate -co TILED=YES -co COMPRESS=DEFLATE %s TILED.tif)", stripped, gib(hold), stripped)
+	if stripped != "" {
+		strips = fmt.Sprintf(", reading %s, stored in strips of the whole width that GDAL decodes whole, holds %s (a tiled copy is read with a few MB: gdal_translate -co TILED=YES -co COMPRESS=DEFLATE %s TILED.tif)", stripped, gib(reads), stripped)
 	}
 	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs up to %s for the cells with data (at most 1 bit per cell) and the extents' row runs, "+
 		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples%s; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
