@@ -192,3 +192,48 @@ func TestReadBytes(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkScoreStrips times a pass (2 workers, the 5 nested members of
+// nestedFamily) over a 3000 x 2000 Float32 raster stored three ways: in
+// 256 x 256 deflate tiles, as one deflate strip (6 million cells, so read
+// in windows of 1,398 rows through one handle, the strip decoded once),
+// and in deflate strips of 16 rows (read whole, a handle per worker).
+// The sampling at 42 points comes first, as in a run, and holds the
+// strip for the pass.
+func BenchmarkScoreStrips(b *testing.B) {
+	dir := b.TempDir()
+	w, h := 3000, 2000
+	value := func(r, c int) float32 {
+		return float32(math.Round(1000*(0.5+0.5*math.Sin(float64(c)/37)*math.Cos(float64(r)/53))) / 1000)
+	}
+	layout, err := metrics.NewLayout([]float64{0.2, 0.5, 0.7, 0.9}, 4096)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name string
+		opts []string
+	}{
+		{"tiles", []string{"TILED=YES", "COMPRESS=DEFLATE"}},
+		{"one strip", []string{"BLOCKYSIZE=2000", "COMPRESS=DEFLATE"}},
+		{"strips of 16 rows", []string{"BLOCKYSIZE=16", "COMPRESS=DEFLATE"}},
+	} {
+		path := filepath.Join(dir, fmt.Sprintf("%d.tif", len(tc.name)))
+		writeGridRaster(b, path, w, h, false, value, tc.opts...)
+		g, r := openPath(b, path)
+		fam := nestedFamily(g, 4, true)
+		cells := keptCells(g)
+		b.Run(tc.name, func(b *testing.B) {
+			for b.Loop() {
+				if _, _, err := r.Sample(g, cells); err != nil {
+					b.Fatal(err)
+				}
+				if _, _, err := r.Score(g, fam, layout, Options{Workers: 2}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+		r.Close()
+		g.Close()
+	}
+}
