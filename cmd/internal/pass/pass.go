@@ -78,6 +78,7 @@ type Raster struct {
 	// cache holds the strips they lie in (holdCache: held bytes, ended by
 	// releases).
 	windowed bool
+	planes   int // the bands a block of the file holds (pixel interleaving)
 	readMu   sync.Mutex
 	held     int64
 	releases []func()
@@ -218,6 +219,12 @@ func Open(path string) (*Raster, error) {
 	r.scale, r.offset = st.Scale, st.Offset
 	r.width, r.height, r.fileW, r.fileH = st.SizeX, st.SizeY, st.BlockSizeX, st.BlockSizeY
 	r.blockW, r.blockH, r.windowed = readWindows(r.width, r.fileW, r.fileH)
+	r.planes = 1
+	if ds.Metadata("INTERLEAVE", godal.Domain("IMAGE_STRUCTURE")) == "PIXEL" {
+		// A block holds every band's values, which GDAL decodes and
+		// caches together.
+		r.planes = len(bands)
+	}
 	switch st.DataType {
 	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.Float32:
 		r.narrow = true

@@ -48,10 +48,12 @@ func (r *Raster) sharedSource() Source {
 	return &gdalSource{path: r.Path, band: r.band, mu: &r.readMu}
 }
 
-// stripBytes returns the bytes of one of a windowed raster's strips as
-// stored, which GDAL's block cache holds decoded.
-func (r *Raster) stripBytes() int64 {
-	return int64(r.fileW) * int64(r.fileH) * int64(max(r.dtype.Size(), 1))
+// storedBytes returns the bytes of one of the file's blocks (a windowed
+// raster's strips) as stored, which GDAL's block cache holds decoded:
+// every band's, when the bands are interleaved by pixel (GDAL decodes and
+// caches them together).
+func (r *Raster) storedBytes() int64 {
+	return int64(r.fileW) * int64(r.fileH) * int64(max(r.dtype.Size(), 1)) * int64(max(r.planes, 1))
 }
 
 // cacheBytes returns how much GDAL's block cache must hold beyond its own
@@ -67,7 +69,7 @@ func (r *Raster) cacheBytes(workers int) int64 {
 	strips := (r.height + r.fileH - 1) / r.fileH
 	per := (r.fileH + r.blockH - 1) / r.blockH // windows per strip
 	span := min(strips, (max(workers, 1)+per-1)/per+1)
-	return int64(span) * r.stripBytes()
+	return int64(span) * r.storedBytes()
 }
 
 // ReadBytes returns the memory that workers workers reading the raster
@@ -81,9 +83,9 @@ func (r *Raster) ReadBytes(workers int) int64 {
 	workers = max(workers, 1)
 	b := int64(workers) * int64(r.blockW) * int64(r.blockH) * 8
 	if r.windowed {
-		return b + r.cacheBytes(workers) + r.stripBytes()
+		return b + r.cacheBytes(workers) + r.storedBytes()
 	}
-	return b + int64(workers)*int64(r.fileW)*int64(r.fileH)*int64(max(r.dtype.Size(), 1))
+	return b + int64(workers)*r.storedBytes()
 }
 
 // holdCache raises GDAL's block cache for workers readers of a windowed
@@ -146,7 +148,7 @@ func (r *Raster) Strips() string {
 		s = "strip"
 	}
 	return fmt.Sprintf("in %d windows of %d rows inside its %d %s of %d rows, each strip decoded once (%.0f MB)",
-		r.Blocks(), r.blockH, strips, s, r.fileH, float64(r.stripBytes())/1e6)
+		r.Blocks(), r.blockH, strips, s, r.fileH, float64(r.storedBytes())/1e6)
 }
 
 // ReadBytes returns Raster.ReadBytes of the raster at path, and whether

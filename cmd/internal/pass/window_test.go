@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"testing"
 
+	"github.com/airbusgeo/godal"
+
 	"areasweep/extent"
 	"areasweep/metrics"
 )
@@ -92,11 +94,11 @@ func TestWindowedReadsAgree(t *testing.T) {
 		}
 		res.vals = fmt.Sprint(vals, ok)
 		if windowed {
-			if got := extent.BlockCacheSize(); got < base+r.stripBytes() {
-				t.Errorf("%s: after the sampling GDAL's cache is %d bytes, want at least %d + a strip of %d", path, got, base, r.stripBytes())
+			if got := extent.BlockCacheSize(); got < base+r.storedBytes() {
+				t.Errorf("%s: after the sampling GDAL's cache is %d bytes, want at least %d + a strip of %d", path, got, base, r.storedBytes())
 			}
-			if used := extent.BlockCacheUsed(); used < r.stripBytes() {
-				t.Errorf("%s: after the sampling GDAL's cache holds %d bytes, less than a strip (%d)", path, used, r.stripBytes())
+			if used := extent.BlockCacheUsed(); used < r.storedBytes() {
+				t.Errorf("%s: after the sampling GDAL's cache holds %d bytes, less than a strip (%d)", path, used, r.storedBytes())
 			}
 		}
 		for i, workers := range []int{1, 3} {
@@ -189,6 +191,30 @@ func TestReadBytes(t *testing.T) {
 		writeGridRaster(t, path, 300, 200, false, value, tc.opts...)
 		if got, _ := ReadBytes(path, 2); got != tc.want {
 			t.Errorf("%s: ReadBytes %d, want %d", tc.name, got, tc.want)
+		}
+	}
+	// Three bands in one strip: interleaved by pixel, a strip holds all
+	// three, 720,000 bytes, held decoded and counted again compressed:
+	// 76,800 + 2 x 720,000; interleaved by band, only band 1's strip is
+	// read, as for one band: 556,800.
+	for _, tc := range []struct {
+		interleave string
+		want       int64
+	}{{"PIXEL", 1516800}, {"BAND", 556800}} {
+		path := filepath.Join(dir, "bands_"+tc.interleave+".tif")
+		ds, err := godal.Create(godal.GTiff, path, 3, godal.Float32, 300, 200,
+			godal.CreationOption("BLOCKYSIZE=200", "COMPRESS=DEFLATE", "INTERLEAVE="+tc.interleave))
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform([6]float64{0, 0.01, 0, 50, 0, -0.01})
+		sr, _ := godal.NewSpatialRefFromEPSG(4326)
+		ds.SetSpatialRef(sr)
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		if got, windowed := ReadBytes(path, 2); got != tc.want || !windowed {
+			t.Errorf("3 bands interleaved by %s: ReadBytes %d windowed %v, want %d windowed", tc.interleave, got, windowed, tc.want)
 		}
 	}
 }
