@@ -215,12 +215,15 @@ var (
 // bytes)". GDAL's words (the first copied from GDAL 3.6.2's output when a
 // block read met a limit of address space, ulimit -v; the others are its
 // CPLMalloc's and the general phrase, recalled from memory) name a source
-// file and line of GDAL's, which a user cannot act on.
+// file and line of GDAL's, which a user cannot act on; libtiff's ("No
+// space for data buffer at scanline 4294967295", copied from GDAL 3.6.2's
+// output when the read of a 400 MB strip met ulimit -v 2200000) name a
+// buffer, not a disk ("No space left on device" is a full disk).
 const OutOfMemory = "the library ran out of memory"
 
 var (
 	allocBytes  = regexp.MustCompile(`(?i)^.*?\b(?:cannot|can't|could not|unable to|failed to) allocate (\d+) bytes.*$|^.*?\bout of memory allocating (\d+) bytes.*$`)
-	outOfMemory = regexp.MustCompile(`(?i)\bout of memory\b`)
+	outOfMemory = regexp.MustCompile(`(?i)\bout of memory\b|\bNo space for (?:\w+ )*buffer\b`)
 )
 
 // IsOutOfMemory tells whether text (an error's, possibly holding Cause's

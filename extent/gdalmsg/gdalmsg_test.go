@@ -49,6 +49,9 @@ func TestCause(t *testing.T) {
 		{"/gcore/gdalrasterblock.cpp, 1108: cannot allocate 262144 bytes", OutOfMemory + " (it could not allocate 262144 bytes)"},
 		{"CPLMalloc(): Out of memory allocating 1048576 bytes.", OutOfMemory + " (it could not allocate 1048576 bytes)"},
 		{"GTiffRasterBand::IReadBlock(): Out of memory", OutOfMemory},
+		// Copied from GDAL 3.6.2's output (libtiff's words) when the read
+		// of a 400 MB deflate strip met ulimit -v 2200000.
+		{"No space for data buffer at scanline 4294967295", OutOfMemory},
 		{"IReadBlock failed at X offset 3, Y offset 0\n/gcore/gdalrasterblock.cpp, 1108: cannot allocate 65536 bytes", OutOfMemory + " (it could not allocate 65536 bytes)"},
 		{"Cannot find coordinate operations from `ENGCRS[\"arbitrary\",EDATUM[\"\"],CS[Cartesian,2]]' to `EPSG:4326'", "PROJ knows no transformation between the two CRSs"},
 		{"PROJ: proj_create_operations: Source and target ellipsoid do not belong to the same celestial body", "Source and target ellipsoid do not belong to the same celestial body"},
@@ -120,5 +123,26 @@ func TestInstallCaptures(t *testing.T) {
 	}
 	if msgs, dropped := Drain(); len(msgs) != maxKept || dropped != 5 {
 		t.Fatalf("bound: kept %d dropped %d", len(msgs), dropped)
+	}
+}
+
+// TestIsOutOfMemory: libraries' words for memory they could not get are
+// told from a full disk's (the system's "No space left on device", which
+// GDAL passes on for a write). The first three
+// are copied from GDAL 3.6.2's output (see TestCause); the disk's is the
+// system's strerror(ENOSPC).
+func TestIsOutOfMemory(t *testing.T) {
+	for _, tc := range []struct {
+		text string
+		want bool
+	}{
+		{"/gcore/gdalrasterblock.cpp, 1108: cannot allocate 262144 bytes", true},
+		{"No space for data buffer at scanline 4294967295", true},
+		{"GTiffRasterBand::IReadBlock(): Out of memory", true},
+		{"Write error: No space left on device", false},
+	} {
+		if got := IsOutOfMemory(tc.text); got != tc.want {
+			t.Errorf("IsOutOfMemory(%q) = %v, want %v", tc.text, got, tc.want)
+		}
 	}
 }
