@@ -8,11 +8,20 @@ package main
 // Keep in step with minAddressSpace.
 #define AREASWEEP_MIN_ADDRESS_SPACE (2ULL << 30)
 
+// In supervise_linux.go.
+extern void areasweepSupervise(unsigned long long limit);
+
 // areasweepAddressFloor runs when the program is loaded, before Go's
 // runtime starts: see minAddressSpace.
 __attribute__((constructor)) static void areasweepAddressFloor(void) {
 	struct rlimit r;
-	if (getrlimit(RLIMIT_AS, &r) != 0 || r.rlim_cur == RLIM_INFINITY || r.rlim_cur >= AREASWEEP_MIN_ADDRESS_SPACE) {
+	if (getrlimit(RLIMIT_AS, &r) != 0 || r.rlim_cur == RLIM_INFINITY) {
+		return;
+	}
+	if (r.rlim_cur >= AREASWEEP_MIN_ADDRESS_SPACE) {
+		// Go's runtime would meet the limit with a crash report:
+		// watched, the program ends with a message instead.
+		areasweepSupervise((unsigned long long)r.rlim_cur);
 		return;
 	}
 	fprintf(stderr,

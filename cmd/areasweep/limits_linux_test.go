@@ -7,7 +7,9 @@ import (
 	"path/filepath"
 	"regexp"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 )
 
 // TestAddressSpaceFloor: under a limit of virtual memory below
@@ -107,5 +109,82 @@ func TestAddressSpaceFloorHardLimit(t *testing.T) {
 		if got := strings.Contains(msg, "hard limit"); got != (tc.hard != "") || !strings.Contains(msg, tc.hard) {
 			t.Errorf("%s: stderr %q, want it to name the hard limit as %q", tc.set, msg, tc.hard)
 		}
+	}
+}
+
+// TestSupervisedCrash: under a limit of virtual memory (ulimit -v
+// 3,000,000 KiB, above minAddressSpace) the program runs watched by a
+// supervisor (supervise_linux.go). A binary built with -tags crashtest
+// crashes on demand: Go's runtime out of memory ends with exit code 1 and
+// one line saying what to raise (twice the limit) and where the runtime's
+// report is, which holds it; a goroutine's panic ends with exit 3 and
+// one line naming the report; neither report reaches standard error.
+// Lines that only begin like a report's first line are relayed unchanged
+// (carriage returns included) with the program's own exit code; and a
+// stop signal sent to the supervisor reaches the program, which stops as
+// it does unsupervised (exit 143, its message).
+func TestSupervisedCrash(t *testing.T) {
+	dir := t.TempDir()
+	bin := filepath.Join(dir, "areasweep-crashtest")
+	if out, err := exec.Command("go", "build", "-tags", "crashtest", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build -tags crashtest: %v\n%s", err, out)
+	}
+	const kib = 3_000_000
+	tmp := t.TempDir()
+	start := func(mode string, args ...string) *exec.Cmd {
+		cmd := exec.Command("sh", append([]string{"-c", fmt.Sprintf(`ulimit -v %d && exec "$0" "$@"`, kib), bin}, args...)...)
+		cmd.Env = append(os.Environ(), "AREASWEEP_CRASHTEST="+mode, "TMPDIR="+tmp)
+		return cmd
+	}
+	run := func(mode string) (string, int) {
+		cmd := start(mode, "--help")
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		return se.String(), code
+	}
+	report := regexp.MustCompile(`report is in (\S+/run\.log)\n$|please report it with (\S+/run\.log)\n$`)
+	for _, tc := range []struct {
+		mode, begins, inReport string
+		code                   int
+	}{
+		{"oom", fmt.Sprintf("areasweep: stopped: it ran out of the address space its limit of virtual memory allows (%d MiB", kib/1024), "out of memory", 1},
+		{"panic", "areasweep: internal error (the program crashed); this is a bug, please report it with ", "panic: crash test", 3},
+	} {
+		msg, code := run(tc.mode)
+		m := report.FindStringSubmatch(msg)
+		if code != tc.code || !strings.HasPrefix(msg, tc.begins) || strings.Count(msg, "\n") != 1 || m == nil {
+			t.Errorf("%s: exit %d, stderr %q; want exit %d and one line starting %q and naming the report", tc.mode, code, msg, tc.code, tc.begins)
+			continue
+		}
+		if tc.mode == "oom" && !strings.Contains(msg, fmt.Sprintf("ulimit -v %d", 2*kib)) {
+			t.Errorf("oom: %q does not advise ulimit -v %d", msg, 2*kib)
+		}
+		if b, err := os.ReadFile(m[1] + m[2]); err != nil || !strings.Contains(string(b), tc.inReport) || !strings.Contains(string(b), "goroutine ") {
+			t.Errorf("%s: the report %s (%v) lacks %q or the goroutines' stacks", tc.mode, m[1]+m[2], err, tc.inReport)
+		}
+	}
+	const relayed = "line one\nrunning late\npanic-free\n\rprogress 10%\rprogress 50%\rprogress 100%\nfatal errors: none\nno end"
+	if msg, code := run("relay"); msg != relayed || code != 7 {
+		t.Errorf("relay: exit %d, stderr %q; want exit 7 and %q", code, msg, relayed)
+	}
+	// A stop signal to the supervisor: the program waits for its
+	// occurrences from a pipe nobody writes.
+	fifo := filepath.Join(dir, "occ.csv")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	s := newSmallStudy(t)
+	cmd := start("", "run", "--quiet", "--region", s.region, "--occurrences", fifo, "--model", "m="+s.model, "--out", filepath.Join(dir, "out"))
+	var se strings.Builder
+	cmd.Stderr = &se
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(2 * time.Second) // until it waits on the pipe (it can only wait longer)
+	cmd.Process.Signal(syscall.SIGTERM)
+	code := exitCode(cmd.Wait())
+	if code != 143 || !strings.HasPrefix(se.String(), "areasweep: stopped by SIGTERM") {
+		t.Errorf("SIGTERM to the supervisor: exit %d, stderr %q; want 143 and the program's message", code, se.String())
 	}
 }

@@ -216,12 +216,13 @@ const addressSlack = 512 << 20
 // VM of the README's figures, where VmPeak then grew by 0.1 to 4.3 times
 // the estimate: 19 MiB for the demo, 235 MiB for 27 million cells and 60
 // extents, 680 MiB for 100,000 occurrences). A run
-// that reaches the limit stops with the Go runtime's "fatal error: out of
-// memory" and its trace, which nothing in the program can catch, or with
-// a library's allocation failure; the warning before says why and what to
-// do. It goes to run.log and to standard error even with --quiet (a trace
-// may follow), not into results.json (the same inputs give the same
-// results under any limit). A run is not refused: the estimate is not a
+// that reaches the limit stops with a library's allocation failure, or
+// with the Go runtime's "fatal error: out of memory", which nothing in the
+// program can catch (the supervisor of cmd/areasweep's
+// supervise_linux.go turns it into one line); the warning before says
+// why and what to do. It goes to run.log and to standard error even with
+// --quiet, not into results.json (the same inputs give the same results
+// under any limit). A run is not refused: the estimate is not a
 // bound on what a run reserves.
 func (s *Study) warnAddressSpace(est, limit, used int64) {
 	if limit <= 0 || used <= 0 {
@@ -231,7 +232,7 @@ func (s *Study) warnAddressSpace(est, limit, used int64) {
 	if advised <= limit {
 		return
 	}
-	line := fmt.Sprintf("warning: the process may reserve at most %s of address space (its limit of virtual memory: ulimit -v, or a cluster job's such as h_vmem); areasweep's libraries reserve %s of it that they do not use (Go's runtime and the C heap) before the run, which may need about %s more: if it stops for memory (\"out of memory\", or a crash report), raise the limit to at least %s (ulimit -v %d) or remove it (ulimit -v unlimited); a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space",
+	line := fmt.Sprintf("warning: the process may reserve at most %s of address space (its limit of virtual memory: ulimit -v, or a cluster job's such as h_vmem); areasweep's libraries reserve %s of it that they do not use (Go's runtime and the C heap) before the run, which may need about %s more: if it stops for memory, raise the limit to at least %s (ulimit -v %d) or remove it (ulimit -v unlimited); a limit of resident memory (a cgroup's, as SLURM's --mem sets) does not count reserved space",
 		gib(limit), gib(used), gib(advised-used), gib(advised), (advised+1023)/1024)
 	s.log.WriteString(line + "\n")
 	if s.io.ErrOut != nil {
