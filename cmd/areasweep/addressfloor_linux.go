@@ -11,10 +11,21 @@ package main
 // In supervise_linux.go.
 extern void areasweepSupervise(unsigned long long limit);
 
+// Keep in step with minOpenFiles.
+#define AREASWEEP_MIN_OPEN_FILES 64
+
 // areasweepAddressFloor runs when the program is loaded, before Go's
-// runtime starts: see minAddressSpace.
+// runtime starts: see minOpenFiles and minAddressSpace.
 __attribute__((constructor)) static void areasweepAddressFloor(void) {
 	struct rlimit r;
+	if (getrlimit(RLIMIT_NOFILE, &r) == 0 && r.rlim_max != RLIM_INFINITY && r.rlim_max < AREASWEEP_MIN_OPEN_FILES) {
+		fprintf(stderr,
+			"areasweep: the process may have at most %llu files open at once (its hard limit of open files, ulimit -Hn), and areasweep needs at least %d "
+			"(GDAL's handles on the rasters, one per worker, its layers and PROJ's database); "
+			"start it where that limit is higher (ulimit -n %d in a new shell, or ask the system's administrator, or a cluster job that asks for more)\n",
+			(unsigned long long)r.rlim_max, AREASWEEP_MIN_OPEN_FILES, 1024);
+		_exit(2);
+	}
 	if (getrlimit(RLIMIT_AS, &r) != 0 || r.rlim_cur == RLIM_INFINITY) {
 		return;
 	}
@@ -43,6 +54,18 @@ __attribute__((constructor)) static void areasweepAddressFloor(void) {
 }
 */
 import "C"
+
+// minOpenFiles is the least hard limit of open files (RLIMIT_NOFILE:
+// ulimit -Hn) under which areasweep starts, checked when the program is
+// loaded: below it the process exits with code 2 and a message before
+// reading or writing anything. A soft limit below it is no matter: Go's
+// runtime raises the soft limit to the hard one at start. Our choice:
+// ten times what the demo's run needs with 2 workers (it finished under
+// ulimit -n 20, our measurement), for more models, workers and layers;
+// under ulimit -n 8 Go's runtime crashed at start ("eventfd failed"),
+// under 12 PROJ's database could not be opened ("Cannot find proj.db"),
+// under 16 a run could not write its outputs.
+const minOpenFiles = 64
 
 // minAddressSpace is the least limit of address space (RLIMIT_AS: ulimit
 // -v, a cluster job's h_vmem) under which areasweep starts, checked when

@@ -188,3 +188,35 @@ func TestSupervisedCrash(t *testing.T) {
 		t.Errorf("SIGTERM to the supervisor: exit %d, stderr %q; want 143 and the program's message", code, se.String())
 	}
 }
+
+// TestOpenFilesFloor: under a hard limit of open files below minOpenFiles
+// (sh's ulimit -n sets both limits) the binary stops before Go's runtime
+// starts, with exit 2, one line naming the limit and nothing written;
+// under 8, Go's runtime crashed at start and under 12 the run blamed
+// PROJ's database. A soft limit as low (ulimit -Sn 12) is raised by Go's
+// runtime to the hard one, and the run finishes.
+func TestOpenFilesFloor(t *testing.T) {
+	s := newSmallStudy(t)
+	dir := t.TempDir()
+	under := func(limit string, out string) (string, int) {
+		cmd := exec.Command("sh", "-c", fmt.Sprintf(`ulimit %s && exec "$0" "$@"`, limit), areasweepBin, "run", "--quiet", "--region", s.region, "--occurrences", s.occ, "--model", "m="+s.model, "--out", out, "--iterations", "50")
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		return se.String(), code
+	}
+	for _, n := range []int{8, 12, minOpenFiles - 1} {
+		out := filepath.Join(dir, fmt.Sprintf("out%d", n))
+		msg, code := under(fmt.Sprintf("-n %d", n), out)
+		want := fmt.Sprintf("areasweep: the process may have at most %d files open at once (its hard limit of open files, ulimit -Hn), and areasweep needs at least %d", n, minOpenFiles)
+		if code != 2 || !strings.HasPrefix(msg, want) || strings.Count(msg, "\n") != 1 {
+			t.Errorf("ulimit -n %d: exit %d, stderr %q; want exit 2 and one line starting %q", n, code, msg, want)
+		}
+		if _, err := os.Stat(out); !os.IsNotExist(err) {
+			t.Errorf("ulimit -n %d: %s exists (%v)", n, out, err)
+		}
+	}
+	if msg, code := under("-Sn 12", filepath.Join(dir, "soft")); code != 0 {
+		t.Errorf("ulimit -Sn 12: exit %d, stderr %q; want 0", code, msg)
+	}
+}
