@@ -397,12 +397,15 @@ func nameSettings(err error, files []string, headers []metrics.ShardHeader) {
 	}
 }
 
-// mixedSplits adds to a refusal of shards of different counts that one
+// mixedSplits adds to a refusal of shards of different runs that one
 // folder holds partial files of several splits (shards run there with
-// --force and another N), and which files to give instead.
+// --force and another N), and which files to give instead. It looks at
+// the shard counts in each folder, not at the field CheckShardSet names:
+// two splits that also differ in settings or seed were named by those
+// alone, without the hint.
 func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
 	var se *metrics.ShardError
-	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) || !strings.Contains(se.Detail, "differ in shard count") {
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) {
 		return
 	}
 	counts := map[string]map[int]bool{}
