@@ -625,6 +625,11 @@ func ParseNamedPath(s string) (name, path string, err error) {
 		// The value itself is not repeated: every caller names it (a
 		// long one was quoted twice, whole and cut).
 		why := "holds a character other than letters, digits, '_', '-' or '.'"
+		if r, ok := firstNameMisfit(name); ok {
+			// Name it: "other than letters" read as wrong for an
+			// accented letter (gööd), and a space was invisible.
+			why = fmt.Sprintf("holds %q, which is none of the ASCII letters A-Z and a-z (no accents), digits, '_', '-' or '.'", r)
+		}
 		if n := utf8.RuneCountInString(name); n > 40 {
 			why = fmt.Sprintf("is %d characters long", n)
 		}
@@ -634,6 +639,17 @@ func ParseNamedPath(s string) (name, path string, err error) {
 		return "", "", fmt.Errorf("%w: %q has no PATH after '='; %s", ErrNamedPath, s, advice)
 	}
 	return name, path, nil
+}
+
+// firstNameMisfit returns the first character of name that a NAME may
+// not hold (nameRE), if any.
+func firstNameMisfit(name string) (rune, bool) {
+	for _, r := range name {
+		if !(r < utf8.RuneSelf && nameRE.MatchString(string(r))) {
+			return r, true
+		}
+	}
+	return 0, false
 }
 
 // ParseFloatList parses a comma-separated list of numbers such as

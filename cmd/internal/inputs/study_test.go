@@ -404,7 +404,11 @@ func TestParseNamedPath(t *testing.T) {
 		{"no =", "m.tif", "", "", "has no '='"},
 		{"empty name", "=p.tif", "", "", "no NAME"},
 		{"empty path", "m= ", "", "", "no PATH"},
-		{"bad character", "m/n=p", "", "", `name "m/n" holds a character other than`},
+		{"bad character", "m/n=p", "", "", `name "m/n" holds '/', which is none of the ASCII letters`},
+		// An accented letter is a letter to its writer: the message names
+		// it and says that only A-Z and a-z are taken.
+		{"accented letter", "gööd=p", "", "", `name "gööd" holds 'ö', which is none of the ASCII letters A-Z and a-z (no accents)`},
+		{"space inside", "my model=p", "", "", `name "my model" holds ' ', which is none`},
 		{"empty", "", "", "", "has no '='"},
 	}
 	for _, tc := range cases {
