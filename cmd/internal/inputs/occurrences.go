@@ -353,6 +353,15 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 					e := perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
+					if pe.StartLine > 0 && pe.StartLine < pe.Line && errors.Is(pe.Err, csv.ErrQuote) {
+						// A quote opened and not closed at its cell's end
+						// takes in the lines after it: the reader fails
+						// where it gives up (the last line, for a quote
+						// never closed), far from the quote to fix.
+						e = perr(pe.StartLine, "", fmt.Errorf("%w: a cell on this line starts with a double quote that does not end the cell, "+
+							"so the cell runs on over the next lines, up to line %d where the reader gave up; "+
+							"close the quote at the end of the cell or remove it (write a quote inside a quoted cell as two quotes)", ErrMalformed, pe.Line))
+					}
 					if delim == '\t' && !plain && (errors.Is(pe.Err, csv.ErrBareQuote) || errors.Is(pe.Err, csv.ErrQuote)) {
 						e = &tabQuoteError{err: e, line: pe.Line}
 					}

@@ -176,6 +176,13 @@ func errCases() []errCase {
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
+		// A quote never closed takes in every later line: the reader fails
+		// at the last line (5), the quote to fix is on line 3.
+		{name: "quote open to the end", in: "lon,lat,role,site\n1,2,train,a\n3,4,test,\"b\n5,6,train,c\n7,8,test,d\n", is: ErrMalformed, line: 3,
+			contains: []string{"starts with a double quote", "up to line 5"}},
+		// Closed on a later line with text after the quote.
+		{name: "quote closed lines later", in: "lon,lat,role,site\n1,2,train,a\n3,4,test,\"b\n5,6,train,\"c\"x\n7,8,test,d\n", is: ErrMalformed, line: 3,
+			contains: []string{"starts with a double quote", "up to line 4"}},
 		{name: "tab bare quote and a quoted tab", in: "note\tlon\tlat\trole\na\"b\t1\t2\ttrain\n\"x\ty\"\t3\t4\ttest\n", is: ErrMalformed, line: 3,
 			contains: []string{"5 tab-separated cells but the header 4", "line 2 is not valid CSV quoting"}},
 		{name: "tab bare quote then a bad number", in: "lon\tlat\trole\tnote\n1\t2\ttrain\ta\"b\n3\tabc\ttest\tc\n", is: ErrBadNumber, line: 3, field: "lat",
