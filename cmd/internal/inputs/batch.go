@@ -17,6 +17,7 @@ import (
 	"areasweep/cmd/internal/settings"
 
 	"go.yaml.in/yaml/v3"
+	"golang.org/x/text/unicode/norm"
 )
 
 // A study table lists the studies of a batch: one row per study with an id
@@ -620,7 +621,7 @@ func (p *batchParser) finish() {
 		case s.ID == "":
 			p.add(s.Line, "id", "", fmt.Errorf("%w: the id is empty; give every study an id (letters, digits, '_', '-', '.')", ErrBatchID))
 		case !batchIDRE.MatchString(s.ID):
-			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 letters, digits, '_', '-' or '.', starting with a letter or digit%s", ErrBatchID, shown(s.ID), idSuggestion(s.ID)))
+			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 ASCII letters (A-Z, a-z: no accents), digits, '_', '-' or '.', starting with a letter or digit%s", ErrBatchID, shown(s.ID), idSuggestion(s.ID)))
 		default:
 			low := strings.ToLower(s.ID)
 			if first, dup := seen[low]; dup {
@@ -647,12 +648,13 @@ func (p *batchParser) finish() {
 
 var idUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
 
-// idSuggestion proposes a folder-safe id for a refused one: runs of other
-// characters (spaces, '/', accented letters) replaced by '_', leading and
-// trailing '_', '.' and '-' removed, cut to 64 characters; "" when
-// nothing usable is left.
+// idSuggestion proposes a folder-safe id for a refused one: accents
+// removed from letters (ö is o: "Quercus röbur" is Quercus_robur, not
+// Quercus_r_bur), runs of other characters (spaces, '/', letters of
+// other scripts) replaced by '_', leading and trailing '_', '.' and '-'
+// removed, cut to 64 characters; "" when nothing usable is left.
 func idSuggestion(id string) string {
-	s := strings.Trim(idUnsafe.ReplaceAllString(id, "_"), "_.-")
+	s := strings.Trim(idUnsafe.ReplaceAllString(foldAccents(id), "_"), "_.-")
 	if len(s) > 64 {
 		s = strings.TrimRight(s[:64], "_.-")
 	}
@@ -662,6 +664,19 @@ func idSuggestion(id string) string {
 		return ""
 	}
 	return fmt.Sprintf(", for example %q", s)
+}
+
+// foldAccents returns s with the combining marks of its canonical
+// decomposition (NFD) removed: é, ö, ñ, å read as e, o, n, a. Letters
+// without one (ß, ø, ł) stay.
+func foldAccents(s string) string {
+	var b strings.Builder
+	for _, r := range norm.NFD.String(s) {
+		if !unicode.Is(unicode.Mn, r) {
+			b.WriteRune(r)
+		}
+	}
+	return norm.NFC.String(b.String())
 }
 
 // alnum counts the letters and digits of s, in any script.

@@ -325,12 +325,17 @@ func TestBatchIDSuggestion(t *testing.T) {
 		"Quercus robur":  `, for example "Quercus_robur"`,
 		"Lynx lynx (EU)": `, for example "Lynx_lynx_EU"`,
 		"sp/x":           `, for example "sp_x"`,
-		"Abies_alba_é":   `, for example "Abies_alba"`,
+		"Abies_alba_é":   `, for example "Abies_alba_e"`,
 		"_hidden":        `, for example "hidden"`,
 		"..":             "",
-		"ü":              "",
-		"ünï":            "",                            // "n" would keep 1 of its 3 letters
-		"Ursus_ürsus":    `, for example "Ursus__rsus"`, // keeps 9 of 10
+		// Accents are removed (the letter's canonical decomposition
+		// without its combining mark, Unicode NFD): ü is u, ï is i.
+		"ü":             `, for example "u"`,
+		"ünï":           `, for example "uni"`,
+		"Ursus_ürsus":   `, for example "Ursus_ursus"`,
+		"Quercus röbur": `, for example "Quercus_robur"`,
+		// Letters without a decomposition are replaced as before.
+		"Жук": "",
 	} {
 		if got := idSuggestion(id); got != want {
 			t.Errorf("idSuggestion(%q) = %q, want %q", id, got, want)
