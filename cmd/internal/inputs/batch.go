@@ -592,7 +592,7 @@ func cellNode(key, cell string, line int) *yaml.Node {
 		split = ok && row.Kind == settings.FloatList && strings.Contains(cell, ";")
 	}
 	if split {
-		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line}
+		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line, LineComment: tableCell}
 		for _, part := range strings.Split(cell, ";") {
 			n.Content = append(n.Content, &yaml.Node{Kind: yaml.ScalarNode, Value: strings.TrimSpace(part), Line: line})
 		}

@@ -423,3 +423,46 @@ func TestBatchNumberListSemicolons(t *testing.T) {
 		t.Errorf("bad item: %v", err)
 	}
 }
+
+// TestBatchCellExamples: a bad value in a study table's cell is answered
+// with the cell's text to write, not with a study file's line (a cell of
+// the seed column was told "write for example\n    seed: 42", one of the
+// no-thin column "no-thin: true", one of the e column "e: [10, 25, 50]",
+// values E does not take); the shared '#' lines, which are study-file
+// lines, keep the study file's form.
+func TestBatchCellExamples(t *testing.T) {
+	for _, tc := range []struct {
+		name, shared, column, cell string
+		want                       []string
+		not                        string
+	}{
+		{"seed", "", "seed", "x", []string{`"x" is not a whole number; write for example 42 in the cell`}, "seed: 42"},
+		{"iterations", "", "iterations", "20.5", []string{`"20.5" is not a whole number; write for example 1000 in the cell`}, "iterations: 1000"},
+		{"fraction", "", "fraction", "half", []string{`"half" is not a number; write for example 0.5 in the cell`}, "fraction: 0.5"},
+		{"no-thin", "", "no-thin", "maybe", []string{`"maybe" is not true or false; write true or false in the cell`}, "no-thin: true"},
+		{"e item", "", "e", "0.05;x", []string{`item 2: "x" is not a number; write for example 0.05;0.1 in the cell`}, "[10, 25, 50]"},
+		{"e one value", "", "e", "x", []string{`"x" is not a finite number`, "0.05;0.1"}, "[10, 25, 50]"},
+		{"region-buffers item", "", "region-buffers", "10;x", []string{"write for example 10;25;50 in the cell"}, "region-buffers: ["},
+		{"shared line", "# seed: x\n", "", "", []string{"write for example\n    seed: 42"}, "in the cell"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			hdr, row := "id,model,occurrences,region", "oak,gbm=a.tif,p.csv,r.gpkg"
+			if tc.column != "" {
+				hdr += "," + tc.column
+				row += "," + tc.cell
+			}
+			_, err := ParseBatch([]byte(tc.shared+hdr+"\n"+row+"\n"), "t.csv", "", false)
+			if err == nil {
+				t.Fatal("no error")
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("got %v\nwant it to hold %q", err, w)
+				}
+			}
+			if strings.Contains(err.Error(), tc.not) {
+				t.Errorf("got %v\nwant no %q", err, tc.not)
+			}
+		})
+	}
+}

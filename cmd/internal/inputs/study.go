@@ -320,9 +320,26 @@ func badValue(format string, a ...any) error {
 
 func scalar(key string, v *yaml.Node, want, example string) (*yaml.Node, error) {
 	if v.Kind != yaml.ScalarNode {
-		return nil, badValue("expected %s, found %s; write for example\n    %s: %s", want, kindName(v), key, example)
+		return nil, badValue("expected %s, found %s; %s", want, kindName(v), writeExample(key, v, example, example))
 	}
 	return v, nil
+}
+
+// writeExample is the advice to write key's value as value: a study
+// file's line "key: value", or for a study table's cell (v made by
+// cellNode) the cell's text, cellValue. A table's cell was given a study
+// file's line ("seed: 42" for a cell of the seed column).
+func writeExample(key string, v *yaml.Node, value, cellValue string) string {
+	if v != nil && v.LineComment == tableCell {
+		return fmt.Sprintf("write for example %s in the cell", cellValue)
+	}
+	return fmt.Sprintf("write for example\n    %s: %s", key, value)
+}
+
+// listExamples are listExample(key) as a study file's list and as a study
+// table's cell writes it.
+func listExamples(key string) (value, cellValue string) {
+	return "[" + strings.ReplaceAll(listExample(key), ",", ", ") + "]", strings.ReplaceAll(listExample(key), ",", ";")
 }
 
 func stringValue(key string, v *yaml.Node) (*string, error) {
@@ -380,18 +397,18 @@ func intValue(key string, v *yaml.Node) (*int, error) {
 	switch n.ShortTag() {
 	case "!!int":
 		if err := n.Decode(&out); err != nil {
-			return nil, badValue("%q is too large; write for example\n    %s: 1000", n.Value, key)
+			return nil, badValue("%q is too large; %s", n.Value, writeExample(key, n, "1000", "1000"))
 		}
 	case "!!float":
 		var f float64
 		err := n.Decode(&f)
 		w, ok := wholeFloat(f)
 		if err != nil || !ok {
-			return nil, badValue("%s is not a whole number; write for example\n    %s: 1000", shown(n.Value), key)
+			return nil, badValue("%s is not a whole number; %s", shown(n.Value), writeExample(key, n, "1000", "1000"))
 		}
 		out = w
 	default:
-		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 1000", shown(n.Value), quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; %s", shown(n.Value), quotedHint(n), writeExample(key, n, "1000", "1000"))
 	}
 	return &out, nil
 }
@@ -432,11 +449,11 @@ func uintValue(key string, v *yaml.Node) (*uint64, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!int" {
-		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 42", shown(n.Value), quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; %s", shown(n.Value), quotedHint(n), writeExample(key, n, "42", "42"))
 	}
 	var out uint64
 	if err := n.Decode(&out); err != nil {
-		return nil, badValue("%s is not a whole number from 0 to %d; write for example\n    %s: 42", shown(n.Value), uint64(math.MaxUint64), key)
+		return nil, badValue("%s is not a whole number from 0 to %d; %s", shown(n.Value), uint64(math.MaxUint64), writeExample(key, n, "42", "42"))
 	}
 	return &out, nil
 }
@@ -448,7 +465,7 @@ func floatValue(key string, v *yaml.Node) (*float64, error) {
 	}
 	f, err := yamlNumber(n)
 	if err != nil {
-		return nil, badValue("%v; write for example\n    %s: 0.5", err, key)
+		return nil, badValue("%v; %s", err, writeExample(key, n, "0.5", "0.5"))
 	}
 	return &f, nil
 }
@@ -480,6 +497,9 @@ func boolValue(key string, v *yaml.Node) (*bool, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!bool" {
+		if n.LineComment == tableCell {
+			return nil, badValue("%s is not true or false%s; write true or false in the cell (or leave it empty for the shared setting)", shown(n.Value), quotedHint(n))
+		}
 		return nil, badValue("%s is not true or false%s; write\n    %s: true\nor\n    %s: false", shown(n.Value), quotedHint(n), key, key)
 	}
 	var b bool
@@ -493,17 +513,20 @@ func boolValue(key string, v *yaml.Node) (*bool, error) {
 // value "a, b, c" as on the command line. An empty list gives a non-nil
 // empty slice.
 func floatList(key string, v *yaml.Node) ([]float64, error) {
+	// The example holds values the key takes (E in (0,1)): it said
+	// "e: [10, 25, 50]" for every list.
+	value, cellValue := listExamples(key)
 	switch v.Kind {
 	case yaml.SequenceNode:
 		out := make([]float64, 0, len(v.Content))
 		for i, item := range v.Content {
 			item = deref(item)
 			if item.Kind != yaml.ScalarNode {
-				return nil, &lineErr{item.Line, badValue("item %d is %s, expected a number; write for example\n    %s: [10, 25, 50]", i+1, kindName(item), key)}
+				return nil, &lineErr{item.Line, badValue("item %d is %s, expected a number; %s", i+1, kindName(item), writeExample(key, v, value, cellValue))}
 			}
 			f, err := yamlNumber(item)
 			if err != nil {
-				return nil, &lineErr{item.Line, badValue("item %d: %v; write for example\n    %s: [10, 25, 50]", i+1, err, key)}
+				return nil, &lineErr{item.Line, badValue("item %d: %v; %s", i+1, err, writeExample(key, v, value, cellValue))}
 			}
 			out = append(out, f)
 		}
@@ -512,7 +535,7 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 		if tag := v.ShortTag(); tag == "!!int" || tag == "!!float" {
 			f, err := yamlNumber(v)
 			if err != nil {
-				return nil, badValue("%v; write for example\n    %s: [10, 25, 50]", err, key)
+				return nil, badValue("%v; %s", err, writeExample(key, v, value, cellValue))
 			}
 			return []float64{f}, nil
 		}
@@ -531,7 +554,7 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 		}
 		return out, nil
 	default:
-		return nil, badValue("expected a list of numbers, found %s; write for example\n    %s: [10, 25, 50]", kindName(v), key)
+		return nil, badValue("expected a list of numbers, found %s; %s", kindName(v), writeExample(key, v, value, cellValue))
 	}
 }
 

@@ -170,6 +170,11 @@ func TestParseStudyErrors(t *testing.T) {
 		{"empty path", "out: \"\"\n", ErrBadValue, 1, "out", []string{"path is empty"}},
 		{"bad list item names its line", "region-buffers:\n  - 10\n  - ten\n", ErrBadValue, 3, "region-buffers", []string{`item 2: "ten" is not a number`}},
 		{"nested list item", "e: [[1]]\n", ErrBadValue, 1, "e", []string{"item 1 is a list"}},
+		// The example holds values the key takes: it was e: [10, 25, 50]
+		// for every list, and E lies in (0,1).
+		{"bad e item", "e: [0.05, x]\n", ErrBadValue, 1, "e", []string{`item 2: "x" is not a number`, "e: [0.05, 0.1]"}},
+		{"bad thresholds item", "thresholds:\n  - x\n", ErrBadValue, 2, "thresholds", []string{"thresholds: [0.25, 0.5]"}},
+		{"bad buffer item", "hull-buffers: [x]\n", ErrBadValue, 1, "hull-buffers", []string{"hull-buffers: [10, 25, 50]"}},
 		// A study file's list is written as the file writes it, not as
 		// the flag (--e=...) is: the line and key name it already.
 		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"not a list of numbers: item 2", "is empty", "for example e: [0.05, 0.1]"}},
