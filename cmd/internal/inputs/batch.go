@@ -719,8 +719,13 @@ lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 
 // rowHint explains a row with more cells than the header in a
 // comma-separated table by its likely cause: NAME=PATH items of one cell
-// separated by commas instead of ';', or a decimal comma (commaHint).
+// separated by commas instead of ';', or a decimal comma (commaHint). In
+// a table delimited by semicolons, the ';' between a cell's items (two
+// models, a list 20;50) splits the cell unless it is in double quotes.
 func rowHint(delim rune, rec []string, header int) string {
+	if delim == ';' && len(rec) > header {
+		return `. In a table delimited by semicolons, a cell of several items separated by ';' (gbm=a.tif;glm=b.tif, or 20;50) goes in double quotes ("gbm=a.tif;glm=b.tif"), or else its items fall into the next columns`
+	}
 	if delim != ',' || len(rec) <= header {
 		return ""
 	}

@@ -160,6 +160,17 @@ func TestBatchSemicolonTable(t *testing.T) {
 	if got := *b.Studies[0].Study; got["model"].([]string)[0] != "gbm=a.tif" || got["fraction"] != 0.5 {
 		t.Fatalf("%+v", got)
 	}
+	// Two models in one cell: their ';' is the delimiter unless the cell
+	// is quoted. The refusal of the longer row says so; the quoted cell
+	// reads as two models.
+	_, err = ParseBatch([]byte("id;model;occurrences;region\noak;gbm=a.tif;glm=b.tif;p.csv;r.gpkg\n"), "t.csv", "", false)
+	if err == nil || !strings.Contains(err.Error(), "5 cells, the header has 4 columns") || !strings.Contains(err.Error(), `goes in double quotes ("gbm=a.tif;glm=b.tif")`) {
+		t.Errorf("two models unquoted in a semicolon table: %v", err)
+	}
+	b, err = ParseBatch([]byte("id;model;occurrences;region\noak;\"gbm=a.tif;glm=b.tif\";p.csv;r.gpkg\n"), "t.csv", "", false)
+	if err != nil || len((*b.Studies[0].Study)["model"].([]string)) != 2 {
+		t.Errorf("two models quoted in a semicolon table: %v", err)
+	}
 }
 
 // TestBatchCollectsEveryError: one table with many bad rows reports every
