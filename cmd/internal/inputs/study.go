@@ -126,6 +126,36 @@ func tableHeader(data []byte) int {
 	return 0
 }
 
+// firstLine is the first line of data that is neither blank nor a '#'
+// comment, without its line end.
+func firstLine(data []byte) string {
+	for _, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		if l = strings.TrimSpace(l); l != "" && !strings.HasPrefix(l, "#") {
+			return l
+		}
+	}
+	return ""
+}
+
+// delimitedTable reports whether data reads as a delimited table: its
+// first line (firstLine) and the next one hold a comma, semicolon or tab,
+// and neither is a "key: value" line.
+func delimitedTable(data []byte) bool {
+	n := 0
+	for _, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		if l = strings.TrimSpace(l); l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		if !strings.ContainsAny(l, ",;\t") || strings.Contains(l, ": ") {
+			return false
+		}
+		if n++; n == 2 {
+			return true
+		}
+	}
+	return false
+}
+
 // ParseStudy reads a study file from r; name is used in messages and
 // relative paths are resolved against baseDir (left relative when baseDir
 // is empty). See LoadStudy.
@@ -165,6 +195,13 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 		return st, nil
 	}
 	if root.Kind != yaml.MappingNode {
+		if root.Kind == yaml.ScalarNode && delimitedTable(data) {
+			// An occurrence table given to --study was quoted whole
+			// (8.9 kB for the demo's) and not named as a table.
+			return nil, serr(root.Line, "", fmt.Errorf("%w: found a delimited table (its first line %s), not key: value lines; "+
+				"an occurrence table goes to --occurrences (or the study file's occurrences: key), and --study takes a YAML file of settings such as\n    iterations: 1000",
+				ErrStudySyntax, shown(firstLine(data))))
+		}
 		return nil, serr(root.Line, "", fmt.Errorf("%w: found %s instead of key: value lines; "+
 			"write one setting per line, for example\n    iterations: 1000", ErrStudySyntax, kindName(root)))
 	}
@@ -260,7 +297,7 @@ func kindName(n *yaml.Node) string {
 	case yaml.MappingNode:
 		return "a mapping (key: value pairs)"
 	case yaml.ScalarNode:
-		return fmt.Sprintf("the single value %q", n.Value)
+		return "the single value " + shown(n.Value)
 	default:
 		return "an unexpected YAML node"
 	}

@@ -190,6 +190,11 @@ func TestParseStudyErrors(t *testing.T) {
 		{"two documents", "seed: 1\n---\nseed: 2\n", ErrStudySyntax, 2, "", []string{"second YAML document", "'---'"}},
 		{"root is a list", "- seed: 1\n", ErrStudySyntax, 1, "", []string{"found a list", "iterations: 1000"}},
 		{"root is text", "hello\n", ErrStudySyntax, 1, "", []string{`"hello"`}},
+		// An occurrence table given as the study file: named as a table,
+		// with its first line only (the whole table was quoted).
+		{"occurrence table", "longitude,latitude,role\n-138.95,-39.96,train\n" + strings.Repeat("-137.85,-41.15,test\n", 300), ErrStudySyntax, 1, "",
+			[]string{`found a delimited table (its first line "longitude,latitude,role")`, "goes to --occurrences"}},
+		{"long single value", strings.Repeat("word ", 100) + "\n", ErrStudySyntax, 1, "", []string{`... (499 characters)`}}, // 100 times "word " less the last space, which YAML drops
 		{"key is a list", "[a]: 1\n", ErrStudySyntax, 1, "", []string{"plain name"}},
 	}
 	for _, tc := range cases {
