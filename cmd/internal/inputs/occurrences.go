@@ -391,6 +391,12 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	}
 	cols, err := findColumns(hdr, delim)
 	if err != nil {
+		if len(hdr) > 0 && strings.HasPrefix(strings.TrimSpace(hdr[0]), "#") {
+			// A comment above the header (an export's date, a note) is
+			// read as the header, and its words were all the message
+			// gave to go on.
+			err = fmt.Errorf("%w. This line starts with '#': the table has no comment lines, and its first line that is not blank is the header; delete the lines above the header", err)
+		}
 		return nil, perr(hdrLine, "", err)
 	}
 

@@ -133,6 +133,9 @@ func errCases() []errCase {
 	return []errCase{
 		{name: "no coordinate columns", in: "id,species,role\n1,a,train\n", is: ErrNoCoordinates, line: 1,
 			contains: []string{"neither a longitude nor a latitude", `"species"`, "lon, long, lng, longitude, x, decimallongitude, decimal_longitude", "lat, latitude, y, decimallatitude, decimal_latitude"}},
+		// A comment line above the header is read as the header: the
+		// message says so.
+		{name: "comment above the header", in: "# exported 2026-01-02\nlon,lat,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{`"# exported 2026-01-02"`, "starts with '#'", "delete the lines above the header"}},
 		{name: "no latitude column", in: "lon,latt,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no latitude column", `"latt"`}},
 		{name: "no longitude column", in: "lat,role\n1,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no longitude column"}},
 		{name: "unknown delimiter", in: "lon|lat|role\n1|2|train\n", is: ErrNoCoordinates, line: 1, contains: []string{"1 comma-separated fields", `"lon|lat|role"`, "semicolon or a tab"}},
