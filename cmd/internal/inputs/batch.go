@@ -453,6 +453,7 @@ func (p *batchParser) parseCSV(data []byte) {
 			}
 		}
 	}
+	p.lateSettings(rest, lines)
 	header, _, _ := bytes.Cut(rest, []byte("\n"))
 	delim := detectDelimiter(header)
 	r := csv.NewReader(bytes.NewReader(rest))
@@ -575,6 +576,28 @@ func yamlSyntax(err error, data []byte) (int, string) {
 	near := yamlNear(err, data, true)
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	return 0, near + ": " + yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
+}
+
+// lateSettings refuses each '#' line of rest (the table after its shared
+// block, which starts after line skip) that reads as a shared setting
+// ("# iterations: 20", a study key then ':'): past the block (after a
+// blank line, the header or a row) a '#' line is a comment, and such a
+// setting was ignored without a word (the studies ran 1000 iterations).
+// A "## ..." line stays a comment.
+func (p *batchParser) lateSettings(rest []byte, skip int) {
+	for i, line := range bytes.Split(rest, []byte("\n")) {
+		text, ok := bytes.CutPrefix(bytes.TrimSpace(line), []byte("#"))
+		if !ok || bytes.HasPrefix(text, []byte("#")) {
+			continue
+		}
+		k, _, ok := bytes.Cut(text, []byte(":"))
+		key := string(bytes.TrimSpace(k))
+		if row, known := settings.Lookup(key); !ok || !(known && row.Study || key == "models") {
+			continue
+		}
+		p.add(skip+i+1, "", "", fmt.Errorf("%w: this '#' line reads as the shared setting %q, but only the '#' lines at the very top of the table, before any blank line and the header, are shared settings: "+
+			"here it is a comment, and the studies would run without it; move it up into that block (with no blank line above it), or write it with '##' to keep it as a comment", ErrBatchSyntax, key))
+	}
 }
 
 // cellNode turns a CSV cell into the YAML node a study file would hold:

@@ -477,3 +477,41 @@ func TestBatchCellExamples(t *testing.T) {
 		})
 	}
 }
+
+// TestBatchLateSharedSetting: a '#' line that reads as a shared setting
+// below the shared block (after a blank line, or after the header) is
+// refused, naming its line: it was a comment, and the studies ran
+// without it ("# iterations: 20" after a blank line ran 1000). A '##'
+// comment, a '#' comment that is no setting, and the block at the top
+// still read.
+func TestBatchLateSharedSetting(t *testing.T) {
+	const hdr = "id,model,occurrences,region\noak,gbm=a.tif,p.csv,r.gpkg\n"
+	for _, tc := range []struct {
+		name, text string
+		line       int // 0: no error
+	}{
+		{"after a blank line", "# seed: 4\n\n# iterations: 20\n" + hdr, 3},
+		{"after the header", "id,model,occurrences,region\n# iterations: 20\noak,gbm=a.tif,p.csv,r.gpkg\n", 2},
+		{"after the rows", hdr + "# e: [0.1]\n", 3},
+		{"models spelled so", hdr + "#models: gbm=b.tif\n", 3},
+		{"CRLF", "# seed: 4\r\n\r\n# iterations: 20\r\n" + strings.ReplaceAll(hdr, "\n", "\r\n"), 3},
+		{"double hash comment", hdr + "## iterations: 20 was too few\n", 0},
+		{"plain comment", hdr + "# checked: by hand\n# note 2026-01-02\n", 0},
+		{"block at the top", "# iterations: 20\n# seed: 4\n" + hdr, 0},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := ParseBatch([]byte(tc.text), "t.csv", "", false)
+			if tc.line == 0 {
+				if err != nil {
+					t.Fatal(err)
+				}
+				return
+			}
+			var es BatchErrors
+			if !errors.As(err, &es) || len(es) != 1 || es[0].Line != tc.line || !errors.Is(es[0], ErrBatchSyntax) ||
+				!strings.Contains(err.Error(), "reads as the shared setting") || !strings.Contains(err.Error(), "move it up") {
+				t.Fatalf("got %v, want one error on line %d", err, tc.line)
+			}
+		})
+	}
+}
