@@ -510,6 +510,10 @@ func (p *batchParser) parseCSV(data []byte) {
 				continue
 			}
 			cl, _ := r.FieldPos(j)
+			if cols[j] == "" {
+				p.add(cl+lines, "", id, fmt.Errorf("%w: column %d has no name in the header but holds %s on this row; name the column with a study key, or clear the cell", ErrBatchColumn, j+1, shown(cell)))
+				continue
+			}
 			p.setKey(st, cols[j], cellNode(cols[j], cell, cl+lines), id)
 		}
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: line, Study: st})
@@ -536,6 +540,11 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], commaHint(delim, len(rec), 4)))
 			ok = false
 		case j == 0:
+		case c == "":
+			// A column without a name, as a spreadsheet exports the
+			// empty columns right of the table ("id,...,seed,,"): its
+			// cells must be empty (the rows check it).
+			continue
 		case c == "id":
 			p.add(line, c, "", fmt.Errorf("%w: id appears again in column %d", ErrBatchColumn, j+1))
 			ok = false

@@ -515,3 +515,21 @@ func TestBatchLateSharedSetting(t *testing.T) {
 		})
 	}
 }
+
+// TestBatchUnnamedColumns: columns without a name, as a spreadsheet
+// exports the empty columns right of a table ("id,...,region,,"), are
+// ignored while their cells are empty (they were refused as column ""
+// that is not a study key); a cell with text under one is refused,
+// naming its line, study and column number.
+func TestBatchUnnamedColumns(t *testing.T) {
+	b, err := ParseBatch([]byte("# seed: 4\nid,model,occurrences,region,,\noak,gbm=a.tif,p.csv,r.gpkg,,\nfir,gbm=b.tif,p.csv,r.gpkg, ,\n"), "t.csv", "", false)
+	if err != nil || len(b.Studies) != 2 || (*b.Studies[1].Study)["model"].([]string)[0] != "gbm=b.tif" {
+		t.Fatalf("empty unnamed columns: %v", err)
+	}
+	_, err = ParseBatch([]byte("id,model,occurrences,region,,\noak,gbm=a.tif,p.csv,r.gpkg,,\nfir,gbm=b.tif,p.csv,r.gpkg,,note\n"), "t.csv", "", false)
+	var es BatchErrors
+	if !errors.As(err, &es) || len(es) != 1 || es[0].Line != 3 || !errors.Is(es[0], ErrBatchColumn) ||
+		!strings.Contains(err.Error(), `study "fir"`) || !strings.Contains(err.Error(), `column 6 has no name in the header but holds "note"`) {
+		t.Fatalf("text under an unnamed column: %v", err)
+	}
+}
