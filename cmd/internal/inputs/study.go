@@ -74,7 +74,8 @@ func (e *StudyError) Unwrap() error { return e.Err }
 // error naming the key, its line and the allowed keys; a value of the wrong
 // type is an error naming the key and the line. Relative paths (model and
 // extra paths after '=', occurrences, region, ecoregions, out) are resolved
-// against the directory holding the study file.
+// against the directory holding the study file (left relative, to the
+// current folder, for a study file read from a pipe).
 func LoadStudy(path string) (*Study, error) {
 	if err := checkRegular(path, "study file"); err != nil {
 		return nil, err
@@ -103,7 +104,16 @@ func LoadStudy(path string) (*Study, error) {
 		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: this is a study table (a header id,... and one row per study), not a study file; "+
 			"run it with areasweep batch %s --out DIR", ErrStudySyntax, path)}
 	}
-	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))
+	dir := filepath.Dir(path)
+	if st, err := f.Stat(); err == nil && !st.Mode().IsRegular() || isStreamPath(path) {
+		// A study file read from a pipe or standard input (/dev/stdin,
+		// also when the shell opened a file there with '<', or a shell's
+		// <(...)) has no folder of its own: its relative paths are taken
+		// from the current folder (they were joined to /dev or /dev/fd,
+		// and the message named /dev/model.tif).
+		dir = ""
+	}
+	return ParseStudy(bytes.NewReader(data), path, dir)
 }
 
 // tableHeader returns the line of a study table's header (the first line
@@ -154,6 +164,13 @@ func delimitedTable(data []byte) bool {
 		}
 	}
 	return false
+}
+
+// isStreamPath reports whether path names a process's open file rather
+// than a file in a folder: /dev/stdin, /dev/fd/N, /proc/self/fd/N.
+func isStreamPath(path string) bool {
+	c := filepath.Clean(path)
+	return c == "/dev/stdin" || strings.HasPrefix(c, "/dev/fd/") || (strings.HasPrefix(c, "/proc/") && strings.Contains(c, "/fd/"))
 }
 
 // ParseStudy reads a study file from r; name is used in messages and

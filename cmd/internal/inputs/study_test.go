@@ -281,6 +281,47 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 	}
 
+	// A study file read from a pipe (/dev/stdin, a shell's <(...)) has
+	// no folder: its relative paths stay relative, to the current folder
+	// (they were joined to /dev/fd: "/dev/fd/model_good.tif does not
+	// exist").
+	t.Run("pipe", func(t *testing.T) {
+		r, w, err := os.Pipe()
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer r.Close()
+		go func() {
+			w.WriteString("model: [m=models/m.tif]\noccurrences: occ.csv\nregion: " + abs + "\n")
+			w.Close()
+		}()
+		st, err := LoadStudy(fmt.Sprintf("/dev/fd/%d", r.Fd()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := &Study{"model": []string{"m=models/m.tif"}, "occurrences": "occ.csv", "region": abs}
+		if !reflect.DeepEqual(st, want) {
+			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
+		}
+	})
+
+	// A file the shell opened for the command ('< study.yaml' read as
+	// /dev/stdin) is a regular file named in /dev: the same.
+	t.Run("file opened as a descriptor", func(t *testing.T) {
+		f, err := os.Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		st, err := LoadStudy(fmt.Sprintf("/dev/fd/%d", f.Fd()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := (*st)["region"]; got != "r.gpkg" {
+			t.Fatalf("region %q, want r.gpkg (relative to the current folder)", got)
+		}
+	})
+
 	t.Run("tilde is the home folder", func(t *testing.T) {
 		home := t.TempDir()
 		t.Setenv("HOME", home)
