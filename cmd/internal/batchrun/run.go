@@ -55,6 +55,9 @@ func preflight(o *Options) error {
 	if err := outdir.CheckUmask(); err != nil {
 		return err
 	}
+	if err := outdir.TildeError("--out", o.Out); err != nil {
+		return err
+	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
 		if err := extent.CheckSetup(); err != nil {
 			return fault.BadInput(err)

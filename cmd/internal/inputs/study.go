@@ -82,6 +82,9 @@ func LoadStudy(path string) (*Study, error) {
 	}
 	f, err := os.Open(path)
 	switch {
+	case errors.Is(err, os.ErrNotExist) && (path == "~" || strings.HasPrefix(path, "~/")):
+		// --study=~/x: a shell expands ~ only at the start of a word.
+		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist: it starts with ~, which the shell did not turn into your home folder (a shell does so only at the start of a word, not after --study=): write --study and the path apart (--study %s) or give the full path", path, path), err}
 	case errors.Is(err, os.ErrNotExist):
 		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist; check the path (a relative one is taken from the current folder)", path), err}
 	case errors.Is(err, os.ErrPermission):

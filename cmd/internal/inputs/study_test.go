@@ -677,3 +677,13 @@ func TestParseWhole(t *testing.T) {
 		}
 	}
 }
+
+// TestLoadStudyTilde: --study=~/study.yaml reaches areasweep with its ~
+// (a shell expands it only at the start of a word): the refusal says so.
+func TestLoadStudyTilde(t *testing.T) {
+	t.Setenv("HOME", t.TempDir())
+	_, err := LoadStudy("~/study.yaml")
+	if err == nil || !strings.Contains(err.Error(), "not after --study=): write --study and the path apart (--study ~/study.yaml)") {
+		t.Fatalf("got %v", err)
+	}
+}
