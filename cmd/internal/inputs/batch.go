@@ -537,7 +537,14 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 		cols[j] = c
 		switch {
 		case j == 0 && c != "id":
-			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], commaHint(delim, len(rec), 4)))
+			hint := commaHint(delim, len(rec), 4)
+			if cols, _ := findColumns(rec, delim); cols.lon.name != "" && cols.lat.name != "" {
+				// An occurrence table given to batch: named as one, and
+				// its other columns are not listed one by one.
+				p.add(line, c, "", fmt.Errorf("%w: this is an occurrence table (columns %q and %q), not a study table; give it to areasweep run --occurrences, or name it in a study table's occurrences column (areasweep batch --template prints an example table)", ErrBatchColumn, cols.lon.name, cols.lat.name))
+				return nil
+			}
+			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], hint))
 			ok = false
 		case j == 0:
 		case c == "":

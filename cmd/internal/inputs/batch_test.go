@@ -533,3 +533,16 @@ func TestBatchUnnamedColumns(t *testing.T) {
 		t.Fatalf("text under an unnamed column: %v", err)
 	}
 }
+
+// TestBatchGivenOccurrences: an occurrence table given to batch is named
+// as one (it was refused column by column: "the first column must be id,
+// found longitude", then each other column as no study key).
+func TestBatchGivenOccurrences(t *testing.T) {
+	for _, text := range []string{"longitude,latitude,role\n1,2,train\n", "lon;lat\n1;2\n"} {
+		_, err := ParseBatch([]byte(text), "occ.csv", "", false)
+		var es BatchErrors
+		if !errors.As(err, &es) || len(es) != 1 || !strings.Contains(err.Error(), "this is an occurrence table") || !strings.Contains(err.Error(), "areasweep run --occurrences") {
+			t.Errorf("%q: %v", text, err)
+		}
+	}
+}

@@ -395,7 +395,13 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			// A comment above the header (an export's date, a note) is
 			// read as the header, and its words were all the message
 			// gave to go on.
-			err = fmt.Errorf("%w. This line starts with '#': the table has no comment lines, and its first line that is not blank is the header; delete the lines above the header", err)
+			if k, _, ok := strings.Cut(strings.TrimLeft(strings.TrimSpace(hdr[0]), "# "), ":"); ok && contains(studyKeys, strings.TrimSpace(k)) {
+				// A study table's shared settings: the table goes to
+				// batch, and deleting those lines is no advice.
+				err = fmt.Errorf("%w. This line is a study table's shared setting (# %s: ...): a study table is run with areasweep batch TABLE --out DIR; --occurrences takes the table of records", err, strings.TrimSpace(k))
+			} else {
+				err = fmt.Errorf("%w. This line starts with '#': the table has no comment lines, and its first line that is not blank is the header; delete the lines above the header", err)
+			}
 		}
 		return nil, perr(hdrLine, "", err)
 	}

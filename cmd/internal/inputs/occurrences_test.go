@@ -136,6 +136,9 @@ func errCases() []errCase {
 		// A comment line above the header is read as the header: the
 		// message says so.
 		{name: "comment above the header", in: "# exported 2026-01-02\nlon,lat,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{`"# exported 2026-01-02"`, "starts with '#'", "delete the lines above the header"}},
+		// A study table given as the occurrence table: named as one, not
+		// told to delete its shared settings.
+		{name: "study table", in: "# iterations: 20\nid,model,occurrences,region\noak,m=a.tif,p.csv,r.gpkg\n", is: ErrNoCoordinates, line: 1, contains: []string{"a study table's shared setting (# iterations: ...)", "areasweep batch TABLE --out DIR"}},
 		{name: "no latitude column", in: "lon,latt,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no latitude column", `"latt"`}},
 		{name: "no longitude column", in: "lat,role\n1,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no longitude column"}},
 		{name: "unknown delimiter", in: "lon|lat|role\n1|2|train\n", is: ErrNoCoordinates, line: 1, contains: []string{"1 comma-separated fields", `"lon|lat|role"`, "semicolon or a tab"}},
