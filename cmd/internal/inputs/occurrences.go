@@ -424,6 +424,9 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			}
 			return strings.TrimSpace(row[c.index]), nil
 		}
+		if err := otherDelimiter(row, len(hdr), delim); err != nil {
+			return nil, perr(line, "", err)
+		}
 		if err := shiftedCoordinates(row, len(hdr), cols, delim); err != nil {
 			return nil, perr(line, "", err)
 		}
@@ -689,6 +692,36 @@ type column struct {
 }
 
 type columns struct{ lon, lat, role, taxon column }
+
+// otherDelimiter refuses a line read as one cell, under a header of
+// several, that holds another delimiter than the header's at least
+// header-1 times: its cells are separated by another delimiter (a header
+// written by hand with ';' above rows exported with ','). Its longitude
+// was the whole line, refused as "looks like degrees, minutes and
+// seconds".
+func otherDelimiter(row []string, header int, delim rune) error {
+	if len(row) != 1 || header < 2 {
+		return nil
+	}
+	for _, d := range []rune{',', ';', '\t'} {
+		if d != delim && strings.Count(row[0], string(d)) >= header-1 {
+			return fmt.Errorf("%w: the line is one cell, its parts separated by %s, while the header's %d columns are separated by %s; "+
+				"write the header and every line with one delimiter", ErrMalformed, delimiterWord(d), header, delimiterWord(delim))
+		}
+	}
+	return nil
+}
+
+// delimiterWord names delimiter d in a message: "commas (,)".
+func delimiterWord(d rune) string {
+	switch d {
+	case ';':
+		return "semicolons (;)"
+	case '\t':
+		return "tabs"
+	}
+	return "commas (,)"
+}
 
 // detectDelimiter returns ',' when the header line contains a comma, else
 // ';' or '\t', whichever the line holds more of (';' on a tie). A header

@@ -139,6 +139,12 @@ func errCases() []errCase {
 		// A study table given as the occurrence table: named as one, not
 		// told to delete its shared settings.
 		{name: "study table", in: "# iterations: 20\nid,model,occurrences,region\noak,m=a.tif,p.csv,r.gpkg\n", is: ErrNoCoordinates, line: 1, contains: []string{"a study table's shared setting (# iterations: ...)", "areasweep batch TABLE --out DIR"}},
+		// The header written with ';' above lines with ',': each line is
+		// one cell (it was refused as a longitude that "looks like
+		// degrees, minutes and seconds").
+		{name: "header and lines with other delimiters", in: "lon;lat;role\n1.5,2.5,train\n", is: ErrMalformed, line: 2,
+			contains: []string{"the line is one cell, its parts separated by commas (,), while the header's 3 columns are separated by semicolons (;)"}},
+		{name: "tab header, comma lines", in: "lon\tlat\trole\n1.5,2.5,train\n", is: ErrMalformed, line: 2, contains: []string{"separated by commas (,), while the header's 3 columns are separated by tabs"}},
 		{name: "no latitude column", in: "lon,latt,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no latitude column", `"latt"`}},
 		{name: "no longitude column", in: "lat,role\n1,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no longitude column"}},
 		{name: "unknown delimiter", in: "lon|lat|role\n1|2|train\n", is: ErrNoCoordinates, line: 1, contains: []string{"1 comma-separated fields", `"lon|lat|role"`, "semicolon or a tab"}},
