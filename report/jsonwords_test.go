@@ -28,6 +28,15 @@ func TestDecodeSyntaxInOurWords(t *testing.T) {
 		{"broken literal", "{\"schema_version\": 3, \"x\": tru}", []string{"inside a true, false or null"}},
 		{"byte-order mark", "\xef\xbb\xbf{\"schema_version\": 3}", []string{"starts with a byte-order mark", "save it as UTF-8 without BOM"}},
 		{"null schema_version", "{\"schema_version\": null}", []string{"schema_version is null"}},
+		// Saved as "Unicode" by an editor, with a byte-order mark or
+		// without: named as UTF-16 ("the byte 0xFF where a value should
+		// begin").
+		{"UTF-16 with BOM", "\xff\xfe{\x00\"\x00", []string{"is UTF-16 text", "save it as UTF-8"}},
+		{"UTF-16 without BOM", "{\x00\"\x00s\x00", []string{"is UTF-16 text"}},
+		{"UTF-16 big-endian", "\x00{\x00\"", []string{"is UTF-16 text"}},
+		// A run's file broken by an edit at its end (a comma before the
+		// last '}'): named as edited, not as no results file.
+		{"comma before the last brace", "{\n  \"schema_version\": 3,\n  \"x\": 1,\n}\n", []string{"line 4", "as it stands", "the file was edited, damaged or cut short: restore it from a copy"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -661,6 +661,11 @@ func Decode(path string, data []byte) (*Results, error) {
 	if bytes.HasPrefix(data, utf8BOM) {
 		return nil, fmt.Errorf("report: %s starts with a byte-order mark (the bytes EF BB BF, which some editors add when saving as \"UTF-8 with BOM\"); JSON has none and a run writes none: restore the file from a copy, or save it as UTF-8 without BOM", path)
 	}
+	if utf16Text(data) {
+		// Saved as "Unicode" by an editor: the message named "the byte
+		// 0xFF where a value should begin".
+		return nil, fmt.Errorf("report: %s is UTF-16 text (as an editor saves \"Unicode\"); a run writes it as UTF-8: restore the file from a copy, or save it as UTF-8 without BOM", path)
+	}
 	shapeErr := CheckShape(data)
 	if shapeErr == nil {
 		// The shape holds: one JSON object, every key once, a whole
@@ -682,6 +687,12 @@ func Decode(path string, data []byte) (*Results, error) {
 	if err := json.Unmarshal(data, &top); err != nil {
 		if shapeErr != nil && !IsTopLevelShapeError(shapeErr) {
 			return nil, shapeError(path, shapeErr) // JSON broken or cut short at a field
+		}
+		if startsAsResults(data) {
+			// A run's file broken by an edit (a comma left before the
+			// last '}'): said to be no results file at all, with advice
+			// to give another folder.
+			return nil, shapeError(path, errors.New(jsonCause(data, err)))
 		}
 		return nil, fmt.Errorf("report: %s is not a results file written by areasweep (%s); give the --out folder of a finished run", path, jsonCause(data, err))
 	}
@@ -714,6 +725,24 @@ func Decode(path string, data []byte) (*Results, error) {
 		return nil, err
 	}
 	return &r, nil
+}
+
+// utf16Text reports whether data is UTF-16 text: it starts with a UTF-16
+// byte-order mark, or its first two bytes are an ASCII character and a
+// 0 (little-endian without one) or the reverse.
+func utf16Text(data []byte) bool {
+	if len(data) < 2 {
+		return false
+	}
+	a, b := data[0], data[1]
+	return a == 0xFF && b == 0xFE || a == 0xFE && b == 0xFF || a != 0 && a < 0x80 && b == 0 || a == 0 && b != 0 && b < 0x80
+}
+
+// startsAsResults reports whether data starts as a run writes
+// results.json: '{', then the key schema_version.
+func startsAsResults(data []byte) bool {
+	rest, ok := bytes.CutPrefix(bytes.TrimLeft(data, " \t\r\n"), []byte("{"))
+	return ok && bytes.HasPrefix(bytes.TrimLeft(rest, " \t\r\n"), []byte(`"schema_version"`))
 }
 
 // otherVersion says that the file at path has another schema version,

@@ -329,6 +329,10 @@ func wrapArgs(a cobra.PositionalArgs) cobra.PositionalArgs {
 			if c.Flags().Lookup("out") != nil {
 				hint = ": give each value after its flag, e.g. --out DIR"
 			}
+			if ext := strings.ToLower(filepath.Ext(args[0])); (ext == ".yaml" || ext == ".yml") && c.Flags().Lookup("study") != nil {
+				// 'areasweep run study.yaml', as batch takes its table.
+				hint = fmt.Sprintf(": a study file is given with --study (%s --study %s)", c.CommandPath(), args[0])
+			}
 			return fault.BadInput(fmt.Errorf("'%s' takes no arguments, got %q%s (see '%s --help')", c.CommandPath(), args[0], hint, c.CommandPath()))
 		case strings.HasPrefix(err.Error(), "unknown command "): // names the command itself
 			return fault.BadInput(fmt.Errorf("%w (see '%s --help')", err, c.CommandPath()))

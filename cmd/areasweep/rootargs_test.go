@@ -16,6 +16,10 @@ func TestStrayArgument(t *testing.T) {
 	}{
 		{[]string{"extents", "foo"}, `'areasweep extents' takes no arguments, got "foo": give each value after its flag, e.g. --out DIR (see 'areasweep extents --help')`},
 		{[]string{"demo", "/tmp/x"}, `'areasweep demo' takes no arguments, got "/tmp/x": give each value after its flag`},
+		// A study file without --study (as batch takes its table).
+		{[]string{"run", "study.yaml"}, `'areasweep run' takes no arguments, got "study.yaml": a study file is given with --study (areasweep run --study study.yaml)`},
+		{[]string{"extents", "s/Study.YML"}, `a study file is given with --study (areasweep extents --study s/Study.YML)`},
+		{[]string{"demo", "study.yaml"}, `'areasweep demo' takes no arguments, got "study.yaml": give each value after its flag`},
 		{[]string{"version", "x"}, `'areasweep version' takes no arguments, got "x" (see 'areasweep version --help')`},
 		{[]string{"completion", "bash", "zsh"}, `'areasweep completion bash' takes no arguments, got "zsh" (see 'areasweep completion bash --help')`},
 		// Commands with sub-commands keep cobra's wording.

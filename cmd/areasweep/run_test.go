@@ -53,7 +53,12 @@ func TestRunFlags(t *testing.T) {
 		{"null named like a model", []string{"--model", "m=a.tif", "--null", "m=b.tif", "--occurrences", "o", "--region", "r"}, nil, "already used by a model"},
 		{"model names differing in case", []string{"--model", "A=a.tif", "--model", "a=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differ only in case"},
 		{"null named like a model but for case", []string{"--model", "m=a.tif", "--null", "M=b.tif", "--occurrences", "o", "--region", "r"}, nil, "differs only in case"},
-		{"reserved null name", []string{"--model", "distance_null=a.tif", "--occurrences", "o", "--region", "r"}, nil, "kept for the distance-only null"},
+		{"reserved null name", []string{"--model", "distance_null=a.tif", "--occurrences", "o", "--region", "r"}, nil, `--model: the name "distance_null" is kept for the distance-only null; rename that model`},
+		{"reserved null name for a null", []string{"--model", "m=a.tif", "--null", "distance_null=b.tif", "--occurrences", "o", "--region", "r"}, nil, `--null: the name "distance_null" is kept for the distance-only null; rename that null`},
+		// From the study file: named with the file and key, as the other
+		// names are (it said "rename that model" with no word of the file).
+		{"reserved null name in the study file", []string{"--study", write(t, dir, "dn.yaml", "model:\n  - distance_null=a.tif\noccurrences: o.csv\nregion: r.gpkg\n")}, nil,
+			"kept for the distance-only null; rename that model (or add --no-distance-null) (the value comes from the study file " + filepath.Join(dir, "dn.yaml") + ", key model)"},
 		{"extra names differing in case", []string{"--model", "m=a.tif", "--extra", "Lake=a.gpkg", "--extra", "lake=b.gpkg", "--occurrences", "o", "--region", "r"}, nil, `names "Lake" and "lake" differ only in case`},
 		{"extra name twice", []string{"--model", "m=a.tif", "--extra", "lake=a.gpkg", "--extra", "lake=b.gpkg", "--occurrences", "o", "--region", "r"}, nil, `name "lake" is given twice`},
 		// A whole number in exponent or decimal form, as the study file

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -53,6 +54,9 @@ func Run(ctx context.Context, o *Options, w IO) error {
 // summary's cannot use (exit 1, as for run).
 func preflight(o *Options) error {
 	if err := outdir.CheckUmask(); err != nil {
+		return err
+	}
+	if err := outdir.TildeError("--out", o.Out); err != nil {
 		return err
 	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
@@ -177,10 +181,17 @@ func readFailure(out string, st *study, k int) error {
 	if b, err := os.ReadFile(failurePath(out, st.id, k)); err == nil && len(b) > 0 {
 		return errors.New(strings.TrimSpace(string(b)))
 	}
+	dir, what := st.dir, "not finished"
 	if k > 0 {
-		return fmt.Errorf("shard %d not finished: %s holds no completion marker (%s); see the job logs", k, shardDir(out, st.id, k), slurm.MarkerName)
+		dir, what = shardDir(out, st.id, k), fmt.Sprintf("shard %d not finished", k)
 	}
-	return fmt.Errorf("not finished: %s holds no completion marker (%s); see the job logs", st.dir, slurm.MarkerName)
+	if _, err := os.Stat(dir); errors.Is(err, fs.ErrNotExist) {
+		// Never run (--summary-only on a batch that did not run it, a
+		// scheduler task that has not started) or stopped before its
+		// outputs moved in: no folder, and often no job log to see.
+		return fmt.Errorf("%s: %s does not exist (it has not run, or was stopped before its outputs were in place); run the batch command without --summary-only, or with --slurm wait for its job, then write the summary again", what, dir)
+	}
+	return fmt.Errorf("%s: %s holds no completion marker (%s); see the job logs", what, dir, slurm.MarkerName)
 }
 
 // maxFailuresShown is how many failed studies' errors the batch's final

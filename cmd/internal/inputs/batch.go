@@ -17,6 +17,7 @@ import (
 	"areasweep/cmd/internal/settings"
 
 	"go.yaml.in/yaml/v3"
+	"golang.org/x/text/unicode/norm"
 )
 
 // A study table lists the studies of a batch: one row per study with an id
@@ -452,6 +453,7 @@ func (p *batchParser) parseCSV(data []byte) {
 			}
 		}
 	}
+	p.lateSettings(rest, lines)
 	header, _, _ := bytes.Cut(rest, []byte("\n"))
 	delim := detectDelimiter(header)
 	r := csv.NewReader(bytes.NewReader(rest))
@@ -508,6 +510,10 @@ func (p *batchParser) parseCSV(data []byte) {
 				continue
 			}
 			cl, _ := r.FieldPos(j)
+			if cols[j] == "" {
+				p.add(cl+lines, "", id, fmt.Errorf("%w: column %d has no name in the header but holds %s on this row; name the column with a study key, or clear the cell", ErrBatchColumn, j+1, shown(cell)))
+				continue
+			}
 			p.setKey(st, cols[j], cellNode(cols[j], cell, cl+lines), id)
 		}
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: line, Study: st})
@@ -531,9 +537,21 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 		cols[j] = c
 		switch {
 		case j == 0 && c != "id":
-			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], commaHint(delim, len(rec), 4)))
+			hint := commaHint(delim, len(rec), 4)
+			if cols, _ := findColumns(rec, delim); cols.lon.name != "" && cols.lat.name != "" {
+				// An occurrence table given to batch: named as one, and
+				// its other columns are not listed one by one.
+				p.add(line, c, "", fmt.Errorf("%w: this is an occurrence table (columns %q and %q), not a study table; give it to areasweep run --occurrences, or name it in a study table's occurrences column (areasweep batch --template prints an example table)", ErrBatchColumn, cols.lon.name, cols.lat.name))
+				return nil
+			}
+			p.add(line, c, "", fmt.Errorf("%w: the first column must be id, found %q%s", ErrBatchColumn, rec[0], hint))
 			ok = false
 		case j == 0:
+		case c == "":
+			// A column without a name, as a spreadsheet exports the
+			// empty columns right of the table ("id,...,seed,,"): its
+			// cells must be empty (the rows check it).
+			continue
 		case c == "id":
 			p.add(line, c, "", fmt.Errorf("%w: id appears again in column %d", ErrBatchColumn, j+1))
 			ok = false
@@ -576,6 +594,28 @@ func yamlSyntax(err error, data []byte) (int, string) {
 	return 0, near + ": " + yamlWords(yamlLineRE.ReplaceAllString(msg, ""))
 }
 
+// lateSettings refuses each '#' line of rest (the table after its shared
+// block, which starts after line skip) that reads as a shared setting
+// ("# iterations: 20", a study key then ':'): past the block (after a
+// blank line, the header or a row) a '#' line is a comment, and such a
+// setting was ignored without a word (the studies ran 1000 iterations).
+// A "## ..." line stays a comment.
+func (p *batchParser) lateSettings(rest []byte, skip int) {
+	for i, line := range bytes.Split(rest, []byte("\n")) {
+		text, ok := bytes.CutPrefix(bytes.TrimSpace(line), []byte("#"))
+		if !ok || bytes.HasPrefix(text, []byte("#")) {
+			continue
+		}
+		k, _, ok := bytes.Cut(text, []byte(":"))
+		key := string(bytes.TrimSpace(k))
+		if row, known := settings.Lookup(key); !ok || !(known && row.Study || key == "models") {
+			continue
+		}
+		p.add(skip+i+1, "", "", fmt.Errorf("%w: this '#' line reads as the shared setting %q, but only the '#' lines at the very top of the table, before any blank line and the header, are shared settings: "+
+			"here it is a comment, and the studies would run without it; move it up into that block (with no blank line above it), or write it with '##' to keep it as a comment", ErrBatchSyntax, key))
+	}
+}
+
 // cellNode turns a CSV cell into the YAML node a study file would hold:
 // NAME=PATH lists split at ';' into a list, number lists too when the
 // cell holds a ';' (the same separator, and no quotes needed around
@@ -591,7 +631,7 @@ func cellNode(key, cell string, line int) *yaml.Node {
 		split = ok && row.Kind == settings.FloatList && strings.Contains(cell, ";")
 	}
 	if split {
-		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line}
+		n := &yaml.Node{Kind: yaml.SequenceNode, Line: line, LineComment: tableCell}
 		for _, part := range strings.Split(cell, ";") {
 			n.Content = append(n.Content, &yaml.Node{Kind: yaml.ScalarNode, Value: strings.TrimSpace(part), Line: line})
 		}
@@ -620,7 +660,7 @@ func (p *batchParser) finish() {
 		case s.ID == "":
 			p.add(s.Line, "id", "", fmt.Errorf("%w: the id is empty; give every study an id (letters, digits, '_', '-', '.')", ErrBatchID))
 		case !batchIDRE.MatchString(s.ID):
-			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 letters, digits, '_', '-' or '.', starting with a letter or digit%s", ErrBatchID, shown(s.ID), idSuggestion(s.ID)))
+			p.add(s.Line, "id", "", fmt.Errorf("%w: %s cannot name a folder; use 1 to 64 ASCII letters (A-Z, a-z: no accents), digits, '_', '-' or '.', starting with a letter or digit%s", ErrBatchID, shown(s.ID), idSuggestion(s.ID)))
 		default:
 			low := strings.ToLower(s.ID)
 			if first, dup := seen[low]; dup {
@@ -647,12 +687,13 @@ func (p *batchParser) finish() {
 
 var idUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
 
-// idSuggestion proposes a folder-safe id for a refused one: runs of other
-// characters (spaces, '/', accented letters) replaced by '_', leading and
-// trailing '_', '.' and '-' removed, cut to 64 characters; "" when
-// nothing usable is left.
+// idSuggestion proposes a folder-safe id for a refused one: accents
+// removed from letters (ö is o: "Quercus röbur" is Quercus_robur, not
+// Quercus_r_bur), runs of other characters (spaces, '/', letters of
+// other scripts) replaced by '_', leading and trailing '_', '.' and '-'
+// removed, cut to 64 characters; "" when nothing usable is left.
 func idSuggestion(id string) string {
-	s := strings.Trim(idUnsafe.ReplaceAllString(id, "_"), "_.-")
+	s := strings.Trim(idUnsafe.ReplaceAllString(foldAccents(id), "_"), "_.-")
 	if len(s) > 64 {
 		s = strings.TrimRight(s[:64], "_.-")
 	}
@@ -662,6 +703,19 @@ func idSuggestion(id string) string {
 		return ""
 	}
 	return fmt.Sprintf(", for example %q", s)
+}
+
+// foldAccents returns s with the combining marks of its canonical
+// decomposition (NFD) removed: é, ö, ñ, å read as e, o, n, a. Letters
+// without one (ß, ø, ł) stay.
+func foldAccents(s string) string {
+	var b strings.Builder
+	for _, r := range norm.NFD.String(s) {
+		if !unicode.Is(unicode.Mn, r) {
+			b.WriteRune(r)
+		}
+	}
+	return norm.NFC.String(b.String())
 }
 
 // alnum counts the letters and digits of s, in any script.
@@ -704,8 +758,13 @@ lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 
 // rowHint explains a row with more cells than the header in a
 // comma-separated table by its likely cause: NAME=PATH items of one cell
-// separated by commas instead of ';', or a decimal comma (commaHint).
+// separated by commas instead of ';', or a decimal comma (commaHint). In
+// a table delimited by semicolons, the ';' between a cell's items (two
+// models, a list 20;50) splits the cell unless it is in double quotes.
 func rowHint(delim rune, rec []string, header int) string {
+	if delim == ';' && len(rec) > header {
+		return `. In a table delimited by semicolons, a cell of several items separated by ';' (gbm=a.tif;glm=b.tif, or 20;50) goes in double quotes ("gbm=a.tif;glm=b.tif"), or else its items fall into the next columns`
+	}
 	if delim != ',' || len(rec) <= header {
 		return ""
 	}

@@ -160,6 +160,17 @@ func TestBatchSemicolonTable(t *testing.T) {
 	if got := *b.Studies[0].Study; got["model"].([]string)[0] != "gbm=a.tif" || got["fraction"] != 0.5 {
 		t.Fatalf("%+v", got)
 	}
+	// Two models in one cell: their ';' is the delimiter unless the cell
+	// is quoted. The refusal of the longer row says so; the quoted cell
+	// reads as two models.
+	_, err = ParseBatch([]byte("id;model;occurrences;region\noak;gbm=a.tif;glm=b.tif;p.csv;r.gpkg\n"), "t.csv", "", false)
+	if err == nil || !strings.Contains(err.Error(), "5 cells, the header has 4 columns") || !strings.Contains(err.Error(), `goes in double quotes ("gbm=a.tif;glm=b.tif")`) {
+		t.Errorf("two models unquoted in a semicolon table: %v", err)
+	}
+	b, err = ParseBatch([]byte("id;model;occurrences;region\noak;\"gbm=a.tif;glm=b.tif\";p.csv;r.gpkg\n"), "t.csv", "", false)
+	if err != nil || len((*b.Studies[0].Study)["model"].([]string)) != 2 {
+		t.Errorf("two models quoted in a semicolon table: %v", err)
+	}
 }
 
 // TestBatchCollectsEveryError: one table with many bad rows reports every
@@ -325,12 +336,17 @@ func TestBatchIDSuggestion(t *testing.T) {
 		"Quercus robur":  `, for example "Quercus_robur"`,
 		"Lynx lynx (EU)": `, for example "Lynx_lynx_EU"`,
 		"sp/x":           `, for example "sp_x"`,
-		"Abies_alba_é":   `, for example "Abies_alba"`,
+		"Abies_alba_é":   `, for example "Abies_alba_e"`,
 		"_hidden":        `, for example "hidden"`,
 		"..":             "",
-		"ü":              "",
-		"ünï":            "",                            // "n" would keep 1 of its 3 letters
-		"Ursus_ürsus":    `, for example "Ursus__rsus"`, // keeps 9 of 10
+		// Accents are removed (the letter's canonical decomposition
+		// without its combining mark, Unicode NFD): ü is u, ï is i.
+		"ü":             `, for example "u"`,
+		"ünï":           `, for example "uni"`,
+		"Ursus_ürsus":   `, for example "Ursus_ursus"`,
+		"Quercus röbur": `, for example "Quercus_robur"`,
+		// Letters without a decomposition are replaced as before.
+		"Жук": "",
 	} {
 		if got := idSuggestion(id); got != want {
 			t.Errorf("idSuggestion(%q) = %q, want %q", id, got, want)
@@ -416,5 +432,117 @@ func TestBatchNumberListSemicolons(t *testing.T) {
 	_, err = ParseBatch([]byte("id,model,occurrences,region,point-buffers\noak,gbm=a.tif,p.csv,r.gpkg,5;x\n"), "t.csv", "", false)
 	if err == nil || !strings.Contains(err.Error(), "line 2") || !strings.Contains(err.Error(), "point-buffers") || !strings.Contains(err.Error(), "item 2") {
 		t.Errorf("bad item: %v", err)
+	}
+}
+
+// TestBatchCellExamples: a bad value in a study table's cell is answered
+// with the cell's text to write, not with a study file's line (a cell of
+// the seed column was told "write for example\n    seed: 42", one of the
+// no-thin column "no-thin: true", one of the e column "e: [10, 25, 50]",
+// values E does not take); the shared '#' lines, which are study-file
+// lines, keep the study file's form.
+func TestBatchCellExamples(t *testing.T) {
+	for _, tc := range []struct {
+		name, shared, column, cell string
+		want                       []string
+		not                        string
+	}{
+		{"seed", "", "seed", "x", []string{`"x" is not a whole number; write for example 42 in the cell`}, "seed: 42"},
+		{"iterations", "", "iterations", "20.5", []string{`"20.5" is not a whole number; write for example 1000 in the cell`}, "iterations: 1000"},
+		{"fraction", "", "fraction", "half", []string{`"half" is not a number; write for example 0.5 in the cell`}, "fraction: 0.5"},
+		{"no-thin", "", "no-thin", "maybe", []string{`"maybe" is not true or false; write true or false in the cell`}, "no-thin: true"},
+		{"e item", "", "e", "0.05;x", []string{`item 2: "x" is not a number; write for example 0.05;0.1 in the cell`}, "[10, 25, 50]"},
+		{"e one value", "", "e", "x", []string{`"x" is not a finite number`, "0.05;0.1"}, "[10, 25, 50]"},
+		{"region-buffers item", "", "region-buffers", "10;x", []string{"write for example 10;25;50 in the cell"}, "region-buffers: ["},
+		{"shared line", "# seed: x\n", "", "", []string{"write for example\n    seed: 42"}, "in the cell"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			hdr, row := "id,model,occurrences,region", "oak,gbm=a.tif,p.csv,r.gpkg"
+			if tc.column != "" {
+				hdr += "," + tc.column
+				row += "," + tc.cell
+			}
+			_, err := ParseBatch([]byte(tc.shared+hdr+"\n"+row+"\n"), "t.csv", "", false)
+			if err == nil {
+				t.Fatal("no error")
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("got %v\nwant it to hold %q", err, w)
+				}
+			}
+			if strings.Contains(err.Error(), tc.not) {
+				t.Errorf("got %v\nwant no %q", err, tc.not)
+			}
+		})
+	}
+}
+
+// TestBatchLateSharedSetting: a '#' line that reads as a shared setting
+// below the shared block (after a blank line, or after the header) is
+// refused, naming its line: it was a comment, and the studies ran
+// without it ("# iterations: 20" after a blank line ran 1000). A '##'
+// comment, a '#' comment that is no setting, and the block at the top
+// still read.
+func TestBatchLateSharedSetting(t *testing.T) {
+	const hdr = "id,model,occurrences,region\noak,gbm=a.tif,p.csv,r.gpkg\n"
+	for _, tc := range []struct {
+		name, text string
+		line       int // 0: no error
+	}{
+		{"after a blank line", "# seed: 4\n\n# iterations: 20\n" + hdr, 3},
+		{"after the header", "id,model,occurrences,region\n# iterations: 20\noak,gbm=a.tif,p.csv,r.gpkg\n", 2},
+		{"after the rows", hdr + "# e: [0.1]\n", 3},
+		{"models spelled so", hdr + "#models: gbm=b.tif\n", 3},
+		{"CRLF", "# seed: 4\r\n\r\n# iterations: 20\r\n" + strings.ReplaceAll(hdr, "\n", "\r\n"), 3},
+		{"double hash comment", hdr + "## iterations: 20 was too few\n", 0},
+		{"plain comment", hdr + "# checked: by hand\n# note 2026-01-02\n", 0},
+		{"block at the top", "# iterations: 20\n# seed: 4\n" + hdr, 0},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := ParseBatch([]byte(tc.text), "t.csv", "", false)
+			if tc.line == 0 {
+				if err != nil {
+					t.Fatal(err)
+				}
+				return
+			}
+			var es BatchErrors
+			if !errors.As(err, &es) || len(es) != 1 || es[0].Line != tc.line || !errors.Is(es[0], ErrBatchSyntax) ||
+				!strings.Contains(err.Error(), "reads as the shared setting") || !strings.Contains(err.Error(), "move it up") {
+				t.Fatalf("got %v, want one error on line %d", err, tc.line)
+			}
+		})
+	}
+}
+
+// TestBatchUnnamedColumns: columns without a name, as a spreadsheet
+// exports the empty columns right of a table ("id,...,region,,"), are
+// ignored while their cells are empty (they were refused as column ""
+// that is not a study key); a cell with text under one is refused,
+// naming its line, study and column number.
+func TestBatchUnnamedColumns(t *testing.T) {
+	b, err := ParseBatch([]byte("# seed: 4\nid,model,occurrences,region,,\noak,gbm=a.tif,p.csv,r.gpkg,,\nfir,gbm=b.tif,p.csv,r.gpkg, ,\n"), "t.csv", "", false)
+	if err != nil || len(b.Studies) != 2 || (*b.Studies[1].Study)["model"].([]string)[0] != "gbm=b.tif" {
+		t.Fatalf("empty unnamed columns: %v", err)
+	}
+	_, err = ParseBatch([]byte("id,model,occurrences,region,,\noak,gbm=a.tif,p.csv,r.gpkg,,\nfir,gbm=b.tif,p.csv,r.gpkg,,note\n"), "t.csv", "", false)
+	var es BatchErrors
+	if !errors.As(err, &es) || len(es) != 1 || es[0].Line != 3 || !errors.Is(es[0], ErrBatchColumn) ||
+		!strings.Contains(err.Error(), `study "fir"`) || !strings.Contains(err.Error(), `column 6 has no name in the header but holds "note"`) {
+		t.Fatalf("text under an unnamed column: %v", err)
+	}
+}
+
+// TestBatchGivenOccurrences: an occurrence table given to batch is named
+// as one (it was refused column by column: "the first column must be id,
+// found longitude", then each other column as no study key).
+func TestBatchGivenOccurrences(t *testing.T) {
+	for _, text := range []string{"longitude,latitude,role\n1,2,train\n", "lon;lat\n1;2\n"} {
+		_, err := ParseBatch([]byte(text), "occ.csv", "", false)
+		var es BatchErrors
+		if !errors.As(err, &es) || len(es) != 1 || !strings.Contains(err.Error(), "this is an occurrence table") || !strings.Contains(err.Error(), "areasweep run --occurrences") {
+			t.Errorf("%q: %v", text, err)
+		}
 	}
 }

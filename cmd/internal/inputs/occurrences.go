@@ -353,6 +353,15 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 					e := perr(pe.Line, "", fmt.Errorf("%w: %w (at character %d of the line); "+
 						"put double quotes around a cell that contains the delimiter or a quote, "+
 						"and write a quote inside such a cell as two quotes", ErrMalformed, pe.Err, pe.Column))
+					if pe.StartLine > 0 && pe.StartLine < pe.Line && errors.Is(pe.Err, csv.ErrQuote) {
+						// A quote opened and not closed at its cell's end
+						// takes in the lines after it: the reader fails
+						// where it gives up (the last line, for a quote
+						// never closed), far from the quote to fix.
+						e = perr(pe.StartLine, "", fmt.Errorf("%w: a cell on this line starts with a double quote that does not end the cell, "+
+							"so the cell runs on over the next lines, up to line %d where the reader gave up; "+
+							"close the quote at the end of the cell or remove it (write a quote inside a quoted cell as two quotes)", ErrMalformed, pe.Line))
+					}
 					if delim == '\t' && !plain && (errors.Is(pe.Err, csv.ErrBareQuote) || errors.Is(pe.Err, csv.ErrQuote)) {
 						e = &tabQuoteError{err: e, line: pe.Line}
 					}
@@ -382,6 +391,18 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	}
 	cols, err := findColumns(hdr, delim)
 	if err != nil {
+		if len(hdr) > 0 && strings.HasPrefix(strings.TrimSpace(hdr[0]), "#") {
+			// A comment above the header (an export's date, a note) is
+			// read as the header, and its words were all the message
+			// gave to go on.
+			if k, _, ok := strings.Cut(strings.TrimLeft(strings.TrimSpace(hdr[0]), "# "), ":"); ok && contains(studyKeys, strings.TrimSpace(k)) {
+				// A study table's shared settings: the table goes to
+				// batch, and deleting those lines is no advice.
+				err = fmt.Errorf("%w. This line is a study table's shared setting (# %s: ...): a study table is run with areasweep batch TABLE --out DIR; --occurrences takes the table of records", err, strings.TrimSpace(k))
+			} else {
+				err = fmt.Errorf("%w. This line starts with '#': the table has no comment lines, and its first line that is not blank is the header; delete the lines above the header", err)
+			}
+		}
 		return nil, perr(hdrLine, "", err)
 	}
 
@@ -402,6 +423,9 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 					ErrMalformed, len(row), c.name, c.index+1))
 			}
 			return strings.TrimSpace(row[c.index]), nil
+		}
+		if err := otherDelimiter(row, len(hdr), delim); err != nil {
+			return nil, perr(line, "", err)
 		}
 		if err := shiftedCoordinates(row, len(hdr), cols, delim); err != nil {
 			return nil, perr(line, "", err)
@@ -668,6 +692,36 @@ type column struct {
 }
 
 type columns struct{ lon, lat, role, taxon column }
+
+// otherDelimiter refuses a line read as one cell, under a header of
+// several, that holds another delimiter than the header's at least
+// header-1 times: its cells are separated by another delimiter (a header
+// written by hand with ';' above rows exported with ','). Its longitude
+// was the whole line, refused as "looks like degrees, minutes and
+// seconds".
+func otherDelimiter(row []string, header int, delim rune) error {
+	if len(row) != 1 || header < 2 {
+		return nil
+	}
+	for _, d := range []rune{',', ';', '\t'} {
+		if d != delim && strings.Count(row[0], string(d)) >= header-1 {
+			return fmt.Errorf("%w: the line is one cell, its parts separated by %s, while the header's %d columns are separated by %s; "+
+				"write the header and every line with one delimiter", ErrMalformed, delimiterWord(d), header, delimiterWord(delim))
+		}
+	}
+	return nil
+}
+
+// delimiterWord names delimiter d in a message: "commas (,)".
+func delimiterWord(d rune) string {
+	switch d {
+	case ';':
+		return "semicolons (;)"
+	case '\t':
+		return "tabs"
+	}
+	return "commas (,)"
+}
 
 // detectDelimiter returns ',' when the header line contains a comma, else
 // ';' or '\t', whichever the line holds more of (';' on a tie). A header

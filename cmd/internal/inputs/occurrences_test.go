@@ -133,6 +133,18 @@ func errCases() []errCase {
 	return []errCase{
 		{name: "no coordinate columns", in: "id,species,role\n1,a,train\n", is: ErrNoCoordinates, line: 1,
 			contains: []string{"neither a longitude nor a latitude", `"species"`, "lon, long, lng, longitude, x, decimallongitude, decimal_longitude", "lat, latitude, y, decimallatitude, decimal_latitude"}},
+		// A comment line above the header is read as the header: the
+		// message says so.
+		{name: "comment above the header", in: "# exported 2026-01-02\nlon,lat,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{`"# exported 2026-01-02"`, "starts with '#'", "delete the lines above the header"}},
+		// A study table given as the occurrence table: named as one, not
+		// told to delete its shared settings.
+		{name: "study table", in: "# iterations: 20\nid,model,occurrences,region\noak,m=a.tif,p.csv,r.gpkg\n", is: ErrNoCoordinates, line: 1, contains: []string{"a study table's shared setting (# iterations: ...)", "areasweep batch TABLE --out DIR"}},
+		// The header written with ';' above lines with ',': each line is
+		// one cell (it was refused as a longitude that "looks like
+		// degrees, minutes and seconds").
+		{name: "header and lines with other delimiters", in: "lon;lat;role\n1.5,2.5,train\n", is: ErrMalformed, line: 2,
+			contains: []string{"the line is one cell, its parts separated by commas (,), while the header's 3 columns are separated by semicolons (;)"}},
+		{name: "tab header, comma lines", in: "lon\tlat\trole\n1.5,2.5,train\n", is: ErrMalformed, line: 2, contains: []string{"separated by commas (,), while the header's 3 columns are separated by tabs"}},
 		{name: "no latitude column", in: "lon,latt,role\n1,2,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no latitude column", `"latt"`}},
 		{name: "no longitude column", in: "lat,role\n1,train\n", is: ErrNoCoordinates, line: 1, contains: []string{"no longitude column"}},
 		{name: "unknown delimiter", in: "lon|lat|role\n1|2|train\n", is: ErrNoCoordinates, line: 1, contains: []string{"1 comma-separated fields", `"lon|lat|role"`, "semicolon or a tab"}},
@@ -176,6 +188,13 @@ func errCases() []errCase {
 		{name: "short row", in: "lon,lat,role\n1,2,train\n3,4\n", is: ErrMalformed, line: 3, field: "role", contains: []string{"2 cells", "cell 3 of the header", "missing delimiter"}},
 		{name: "bare quote", in: "lon,lat,role\n1,2\"x,train\n", is: ErrMalformed, line: 2, contains: []string{"double quotes"}},
 		{name: "unterminated quote", in: "lon,lat,role\n1,2,train\n3,4,\"test\n", is: ErrMalformed, line: 3},
+		// A quote never closed takes in every later line: the reader fails
+		// at the last line (5), the quote to fix is on line 3.
+		{name: "quote open to the end", in: "lon,lat,role,site\n1,2,train,a\n3,4,test,\"b\n5,6,train,c\n7,8,test,d\n", is: ErrMalformed, line: 3,
+			contains: []string{"starts with a double quote", "up to line 5"}},
+		// Closed on a later line with text after the quote.
+		{name: "quote closed lines later", in: "lon,lat,role,site\n1,2,train,a\n3,4,test,\"b\n5,6,train,\"c\"x\n7,8,test,d\n", is: ErrMalformed, line: 3,
+			contains: []string{"starts with a double quote", "up to line 4"}},
 		{name: "tab bare quote and a quoted tab", in: "note\tlon\tlat\trole\na\"b\t1\t2\ttrain\n\"x\ty\"\t3\t4\ttest\n", is: ErrMalformed, line: 3,
 			contains: []string{"5 tab-separated cells but the header 4", "line 2 is not valid CSV quoting"}},
 		{name: "tab bare quote then a bad number", in: "lon\tlat\trole\tnote\n1\t2\ttrain\ta\"b\n3\tabc\ttest\tc\n", is: ErrBadNumber, line: 3, field: "lat",

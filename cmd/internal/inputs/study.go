@@ -74,13 +74,17 @@ func (e *StudyError) Unwrap() error { return e.Err }
 // error naming the key, its line and the allowed keys; a value of the wrong
 // type is an error naming the key and the line. Relative paths (model and
 // extra paths after '=', occurrences, region, ecoregions, out) are resolved
-// against the directory holding the study file.
+// against the directory holding the study file (left relative, to the
+// current folder, for a study file read from a pipe).
 func LoadStudy(path string) (*Study, error) {
 	if err := checkRegular(path, "study file"); err != nil {
 		return nil, err
 	}
 	f, err := os.Open(path)
 	switch {
+	case errors.Is(err, os.ErrNotExist) && (path == "~" || strings.HasPrefix(path, "~/")):
+		// --study=~/x: a shell expands ~ only at the start of a word.
+		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist: it starts with ~, which the shell did not turn into your home folder (a shell does so only at the start of a word, not after --study=): write --study and the path apart (--study %s) or give the full path", path, path), err}
 	case errors.Is(err, os.ErrNotExist):
 		return nil, &worded{fmt.Sprintf("inputs: study file %s does not exist; check the path (a relative one is taken from the current folder)", path), err}
 	case errors.Is(err, os.ErrPermission):
@@ -103,7 +107,16 @@ func LoadStudy(path string) (*Study, error) {
 		return nil, &StudyError{File: path, Line: line, Err: fmt.Errorf("%w: this is a study table (a header id,... and one row per study), not a study file; "+
 			"run it with areasweep batch %s --out DIR", ErrStudySyntax, path)}
 	}
-	return ParseStudy(bytes.NewReader(data), path, filepath.Dir(path))
+	dir := filepath.Dir(path)
+	if st, err := f.Stat(); err == nil && !st.Mode().IsRegular() || isStreamPath(path) {
+		// A study file read from a pipe or standard input (/dev/stdin,
+		// also when the shell opened a file there with '<', or a shell's
+		// <(...)) has no folder of its own: its relative paths are taken
+		// from the current folder (they were joined to /dev or /dev/fd,
+		// and the message named /dev/model.tif).
+		dir = ""
+	}
+	return ParseStudy(bytes.NewReader(data), path, dir)
 }
 
 // tableHeader returns the line of a study table's header (the first line
@@ -124,6 +137,43 @@ func tableHeader(data []byte) int {
 		return 0
 	}
 	return 0
+}
+
+// firstLine is the first line of data that is neither blank nor a '#'
+// comment, without its line end.
+func firstLine(data []byte) string {
+	for _, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		if l = strings.TrimSpace(l); l != "" && !strings.HasPrefix(l, "#") {
+			return l
+		}
+	}
+	return ""
+}
+
+// delimitedTable reports whether data reads as a delimited table: its
+// first line (firstLine) and the next one hold a comma, semicolon or tab,
+// and neither is a "key: value" line.
+func delimitedTable(data []byte) bool {
+	n := 0
+	for _, l := range strings.Split(string(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))), "\n") {
+		if l = strings.TrimSpace(l); l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		if !strings.ContainsAny(l, ",;\t") || strings.Contains(l, ": ") {
+			return false
+		}
+		if n++; n == 2 {
+			return true
+		}
+	}
+	return false
+}
+
+// isStreamPath reports whether path names a process's open file rather
+// than a file in a folder: /dev/stdin, /dev/fd/N, /proc/self/fd/N.
+func isStreamPath(path string) bool {
+	c := filepath.Clean(path)
+	return c == "/dev/stdin" || strings.HasPrefix(c, "/dev/fd/") || (strings.HasPrefix(c, "/proc/") && strings.Contains(c, "/fd/"))
 }
 
 // ParseStudy reads a study file from r; name is used in messages and
@@ -165,6 +215,13 @@ func ParseStudy(r io.Reader, name, baseDir string) (*Study, error) {
 		return st, nil
 	}
 	if root.Kind != yaml.MappingNode {
+		if root.Kind == yaml.ScalarNode && delimitedTable(data) {
+			// An occurrence table given to --study was quoted whole
+			// (8.9 kB for the demo's) and not named as a table.
+			return nil, serr(root.Line, "", fmt.Errorf("%w: found a delimited table (its first line %s), not key: value lines; "+
+				"an occurrence table goes to --occurrences (or the study file's occurrences: key), and --study takes a YAML file of settings such as\n    iterations: 1000",
+				ErrStudySyntax, shown(firstLine(data))))
+		}
 		return nil, serr(root.Line, "", fmt.Errorf("%w: found %s instead of key: value lines; "+
 			"write one setting per line, for example\n    iterations: 1000", ErrStudySyntax, kindName(root)))
 	}
@@ -260,7 +317,7 @@ func kindName(n *yaml.Node) string {
 	case yaml.MappingNode:
 		return "a mapping (key: value pairs)"
 	case yaml.ScalarNode:
-		return fmt.Sprintf("the single value %q", n.Value)
+		return "the single value " + shown(n.Value)
 	default:
 		return "an unexpected YAML node"
 	}
@@ -320,9 +377,26 @@ func badValue(format string, a ...any) error {
 
 func scalar(key string, v *yaml.Node, want, example string) (*yaml.Node, error) {
 	if v.Kind != yaml.ScalarNode {
-		return nil, badValue("expected %s, found %s; write for example\n    %s: %s", want, kindName(v), key, example)
+		return nil, badValue("expected %s, found %s; %s", want, kindName(v), writeExample(key, v, example, example))
 	}
 	return v, nil
+}
+
+// writeExample is the advice to write key's value as value: a study
+// file's line "key: value", or for a study table's cell (v made by
+// cellNode) the cell's text, cellValue. A table's cell was given a study
+// file's line ("seed: 42" for a cell of the seed column).
+func writeExample(key string, v *yaml.Node, value, cellValue string) string {
+	if v != nil && v.LineComment == tableCell {
+		return fmt.Sprintf("write for example %s in the cell", cellValue)
+	}
+	return fmt.Sprintf("write for example\n    %s: %s", key, value)
+}
+
+// listExamples are listExample(key) as a study file's list and as a study
+// table's cell writes it.
+func listExamples(key string) (value, cellValue string) {
+	return "[" + strings.ReplaceAll(listExample(key), ",", ", ") + "]", strings.ReplaceAll(listExample(key), ",", ";")
 }
 
 func stringValue(key string, v *yaml.Node) (*string, error) {
@@ -380,18 +454,18 @@ func intValue(key string, v *yaml.Node) (*int, error) {
 	switch n.ShortTag() {
 	case "!!int":
 		if err := n.Decode(&out); err != nil {
-			return nil, badValue("%q is too large; write for example\n    %s: 1000", n.Value, key)
+			return nil, badValue("%q is too large; %s", n.Value, writeExample(key, n, "1000", "1000"))
 		}
 	case "!!float":
 		var f float64
 		err := n.Decode(&f)
 		w, ok := wholeFloat(f)
 		if err != nil || !ok {
-			return nil, badValue("%s is not a whole number; write for example\n    %s: 1000", shown(n.Value), key)
+			return nil, badValue("%s is not a whole number; %s", shown(n.Value), writeExample(key, n, "1000", "1000"))
 		}
 		out = w
 	default:
-		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 1000", shown(n.Value), quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; %s", shown(n.Value), quotedHint(n), writeExample(key, n, "1000", "1000"))
 	}
 	return &out, nil
 }
@@ -432,11 +506,11 @@ func uintValue(key string, v *yaml.Node) (*uint64, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!int" {
-		return nil, badValue("%s is not a whole number%s; write for example\n    %s: 42", shown(n.Value), quotedHint(n), key)
+		return nil, badValue("%s is not a whole number%s; %s", shown(n.Value), quotedHint(n), writeExample(key, n, "42", "42"))
 	}
 	var out uint64
 	if err := n.Decode(&out); err != nil {
-		return nil, badValue("%s is not a whole number from 0 to %d; write for example\n    %s: 42", shown(n.Value), uint64(math.MaxUint64), key)
+		return nil, badValue("%s is not a whole number from 0 to %d; %s", shown(n.Value), uint64(math.MaxUint64), writeExample(key, n, "42", "42"))
 	}
 	return &out, nil
 }
@@ -448,7 +522,7 @@ func floatValue(key string, v *yaml.Node) (*float64, error) {
 	}
 	f, err := yamlNumber(n)
 	if err != nil {
-		return nil, badValue("%v; write for example\n    %s: 0.5", err, key)
+		return nil, badValue("%v; %s", err, writeExample(key, n, "0.5", "0.5"))
 	}
 	return &f, nil
 }
@@ -480,6 +554,9 @@ func boolValue(key string, v *yaml.Node) (*bool, error) {
 		return nil, err
 	}
 	if n.ShortTag() != "!!bool" {
+		if n.LineComment == tableCell {
+			return nil, badValue("%s is not true or false%s; write true or false in the cell (or leave it empty for the shared setting)", shown(n.Value), quotedHint(n))
+		}
 		return nil, badValue("%s is not true or false%s; write\n    %s: true\nor\n    %s: false", shown(n.Value), quotedHint(n), key, key)
 	}
 	var b bool
@@ -493,17 +570,20 @@ func boolValue(key string, v *yaml.Node) (*bool, error) {
 // value "a, b, c" as on the command line. An empty list gives a non-nil
 // empty slice.
 func floatList(key string, v *yaml.Node) ([]float64, error) {
+	// The example holds values the key takes (E in (0,1)): it said
+	// "e: [10, 25, 50]" for every list.
+	value, cellValue := listExamples(key)
 	switch v.Kind {
 	case yaml.SequenceNode:
 		out := make([]float64, 0, len(v.Content))
 		for i, item := range v.Content {
 			item = deref(item)
 			if item.Kind != yaml.ScalarNode {
-				return nil, &lineErr{item.Line, badValue("item %d is %s, expected a number; write for example\n    %s: [10, 25, 50]", i+1, kindName(item), key)}
+				return nil, &lineErr{item.Line, badValue("item %d is %s, expected a number; %s", i+1, kindName(item), writeExample(key, v, value, cellValue))}
 			}
 			f, err := yamlNumber(item)
 			if err != nil {
-				return nil, &lineErr{item.Line, badValue("item %d: %v; write for example\n    %s: [10, 25, 50]", i+1, err, key)}
+				return nil, &lineErr{item.Line, badValue("item %d: %v; %s", i+1, err, writeExample(key, v, value, cellValue))}
 			}
 			out = append(out, f)
 		}
@@ -512,7 +592,7 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 		if tag := v.ShortTag(); tag == "!!int" || tag == "!!float" {
 			f, err := yamlNumber(v)
 			if err != nil {
-				return nil, badValue("%v; write for example\n    %s: [10, 25, 50]", err, key)
+				return nil, badValue("%v; %s", err, writeExample(key, v, value, cellValue))
 			}
 			return []float64{f}, nil
 		}
@@ -531,7 +611,7 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 		}
 		return out, nil
 	default:
-		return nil, badValue("expected a list of numbers, found %s; write for example\n    %s: [10, 25, 50]", kindName(v), key)
+		return nil, badValue("expected a list of numbers, found %s; %s", kindName(v), writeExample(key, v, value, cellValue))
 	}
 }
 
@@ -625,6 +705,11 @@ func ParseNamedPath(s string) (name, path string, err error) {
 		// The value itself is not repeated: every caller names it (a
 		// long one was quoted twice, whole and cut).
 		why := "holds a character other than letters, digits, '_', '-' or '.'"
+		if r, ok := firstNameMisfit(name); ok {
+			// Name it: "other than letters" read as wrong for an
+			// accented letter (gööd), and a space was invisible.
+			why = fmt.Sprintf("holds %q, which is none of the ASCII letters A-Z and a-z (no accents), digits, '_', '-' or '.'", r)
+		}
 		if n := utf8.RuneCountInString(name); n > 40 {
 			why = fmt.Sprintf("is %d characters long", n)
 		}
@@ -634,6 +719,17 @@ func ParseNamedPath(s string) (name, path string, err error) {
 		return "", "", fmt.Errorf("%w: %q has no PATH after '='; %s", ErrNamedPath, s, advice)
 	}
 	return name, path, nil
+}
+
+// firstNameMisfit returns the first character of name that a NAME may
+// not hold (nameRE), if any.
+func firstNameMisfit(name string) (rune, bool) {
+	for _, r := range name {
+		if !(r < utf8.RuneSelf && nameRE.MatchString(string(r))) {
+			return r, true
+		}
+	}
+	return 0, false
 }
 
 // ParseFloatList parses a comma-separated list of numbers such as

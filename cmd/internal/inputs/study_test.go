@@ -170,6 +170,11 @@ func TestParseStudyErrors(t *testing.T) {
 		{"empty path", "out: \"\"\n", ErrBadValue, 1, "out", []string{"path is empty"}},
 		{"bad list item names its line", "region-buffers:\n  - 10\n  - ten\n", ErrBadValue, 3, "region-buffers", []string{`item 2: "ten" is not a number`}},
 		{"nested list item", "e: [[1]]\n", ErrBadValue, 1, "e", []string{"item 1 is a list"}},
+		// The example holds values the key takes: it was e: [10, 25, 50]
+		// for every list, and E lies in (0,1).
+		{"bad e item", "e: [0.05, x]\n", ErrBadValue, 1, "e", []string{`item 2: "x" is not a number`, "e: [0.05, 0.1]"}},
+		{"bad thresholds item", "thresholds:\n  - x\n", ErrBadValue, 2, "thresholds", []string{"thresholds: [0.25, 0.5]"}},
+		{"bad buffer item", "hull-buffers: [x]\n", ErrBadValue, 1, "hull-buffers", []string{"hull-buffers: [10, 25, 50]"}},
 		// A study file's list is written as the file writes it, not as
 		// the flag (--e=...) is: the line and key name it already.
 		{"bad list text", "e: \"5,,10\"\n", ErrFloatList, 1, "e", []string{"not a list of numbers: item 2", "is empty", "for example e: [0.05, 0.1]"}},
@@ -185,6 +190,11 @@ func TestParseStudyErrors(t *testing.T) {
 		{"two documents", "seed: 1\n---\nseed: 2\n", ErrStudySyntax, 2, "", []string{"second YAML document", "'---'"}},
 		{"root is a list", "- seed: 1\n", ErrStudySyntax, 1, "", []string{"found a list", "iterations: 1000"}},
 		{"root is text", "hello\n", ErrStudySyntax, 1, "", []string{`"hello"`}},
+		// An occurrence table given as the study file: named as a table,
+		// with its first line only (the whole table was quoted).
+		{"occurrence table", "longitude,latitude,role\n-138.95,-39.96,train\n" + strings.Repeat("-137.85,-41.15,test\n", 300), ErrStudySyntax, 1, "",
+			[]string{`found a delimited table (its first line "longitude,latitude,role")`, "goes to --occurrences"}},
+		{"long single value", strings.Repeat("word ", 100) + "\n", ErrStudySyntax, 1, "", []string{`... (499 characters)`}}, // 100 times "word " less the last space, which YAML drops
 		{"key is a list", "[a]: 1\n", ErrStudySyntax, 1, "", []string{"plain name"}},
 	}
 	for _, tc := range cases {
@@ -270,6 +280,47 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 	if !reflect.DeepEqual(st, want) {
 		t.Fatalf("got %s\nwant %s", dump(st), dump(want))
 	}
+
+	// A study file read from a pipe (/dev/stdin, a shell's <(...)) has
+	// no folder: its relative paths stay relative, to the current folder
+	// (they were joined to /dev/fd: "/dev/fd/model_good.tif does not
+	// exist").
+	t.Run("pipe", func(t *testing.T) {
+		r, w, err := os.Pipe()
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer r.Close()
+		go func() {
+			w.WriteString("model: [m=models/m.tif]\noccurrences: occ.csv\nregion: " + abs + "\n")
+			w.Close()
+		}()
+		st, err := LoadStudy(fmt.Sprintf("/dev/fd/%d", r.Fd()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := &Study{"model": []string{"m=models/m.tif"}, "occurrences": "occ.csv", "region": abs}
+		if !reflect.DeepEqual(st, want) {
+			t.Fatalf("got %s\nwant %s", dump(st), dump(want))
+		}
+	})
+
+	// A file the shell opened for the command ('< study.yaml' read as
+	// /dev/stdin) is a regular file named in /dev: the same.
+	t.Run("file opened as a descriptor", func(t *testing.T) {
+		f, err := os.Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		st, err := LoadStudy(fmt.Sprintf("/dev/fd/%d", f.Fd()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := (*st)["region"]; got != "r.gpkg" {
+			t.Fatalf("region %q, want r.gpkg (relative to the current folder)", got)
+		}
+	})
 
 	t.Run("tilde is the home folder", func(t *testing.T) {
 		home := t.TempDir()
@@ -404,7 +455,11 @@ func TestParseNamedPath(t *testing.T) {
 		{"no =", "m.tif", "", "", "has no '='"},
 		{"empty name", "=p.tif", "", "", "no NAME"},
 		{"empty path", "m= ", "", "", "no PATH"},
-		{"bad character", "m/n=p", "", "", `name "m/n" holds a character other than`},
+		{"bad character", "m/n=p", "", "", `name "m/n" holds '/', which is none of the ASCII letters`},
+		// An accented letter is a letter to its writer: the message names
+		// it and says that only A-Z and a-z are taken.
+		{"accented letter", "gööd=p", "", "", `name "gööd" holds 'ö', which is none of the ASCII letters A-Z and a-z (no accents)`},
+		{"space inside", "my model=p", "", "", `name "my model" holds ' ', which is none`},
 		{"empty", "", "", "", "has no '='"},
 	}
 	for _, tc := range cases {
@@ -620,5 +675,15 @@ func TestParseWhole(t *testing.T) {
 		if got, ok := (*st)["iterations"].(int); !ok || got != c.want {
 			t.Errorf("study iterations: %s gave %v; want %d", c.in, (*st)["iterations"], c.want)
 		}
+	}
+}
+
+// TestLoadStudyTilde: --study=~/study.yaml reaches areasweep with its ~
+// (a shell expands it only at the start of a word): the refusal says so.
+func TestLoadStudyTilde(t *testing.T) {
+	t.Setenv("HOME", t.TempDir())
+	_, err := LoadStudy("~/study.yaml")
+	if err == nil || !strings.Contains(err.Error(), "not after --study=): write --study and the path apart (--study ~/study.yaml)") {
+		t.Fatalf("got %v", err)
 	}
 }

@@ -229,6 +229,9 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	if err := CheckUmask(); err != nil {
 		return nil, err
 	}
+	if err := TildeError("--out", out); err != nil {
+		return nil, err
+	}
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
@@ -393,6 +396,40 @@ func (d *Dir) longestBeside() int {
 		return lock
 	}
 	return max(lock, 1+len(d.name)+1+len(stagePrefix[1:])+len(strconv.Itoa(os.Getpid()))+1+10)
+}
+
+// UnexpandedTilde reports whether path starts with the home folder's ~
+// as a shell writes it ("~" or "~/..."): a shell expands it only at the
+// start of a word, so --out=~/runs reaches areasweep as it is.
+func UnexpandedTilde(path string) bool {
+	return path == "~" || strings.HasPrefix(path, "~/")
+}
+
+// TildeAdvice says what to do with path that starts with an unexpanded ~
+// (UnexpandedTilde), naming flag (e.g. "--out") and the path the shell
+// would have made of it when the home folder is known.
+func TildeAdvice(flag, path string) string {
+	full := ""
+	if home, err := os.UserHomeDir(); err == nil {
+		full = fmt.Sprintf(" (%s)", filepath.Join(home, path[1:]))
+	}
+	switch flag {
+	case "--model", "--null", "--extra":
+		// NAME=~/x: expanded by bash for some names only.
+		return fmt.Sprintf("it starts with ~, which the shell did not turn into your home folder (a shell does so only at the start of a word, and after NAME= only for some names): give the full path%s", full)
+	}
+	return fmt.Sprintf("it starts with ~, which the shell did not turn into your home folder (a shell does so only at the start of a word, not after %s=): "+
+		"write %s and the path apart (%s %s) or give the full path%s", flag, flag, flag, path, full)
+}
+
+// TildeError refuses the folder to write in, flag given as path, when it
+// starts with an unexpanded ~: a folder named ~ would be made in the
+// current folder (and removing it with rm -r ~ removes the home folder).
+func TildeError(flag, path string) error {
+	if !UnexpandedTilde(path) {
+		return nil
+	}
+	return fault.BadInput(fmt.Errorf("%s %s: %s; areasweep does not make a folder named ~", flag, path, TildeAdvice(flag, path)))
 }
 
 // CwdGone says that the current folder was removed (os.Getwd fails), with

@@ -194,7 +194,34 @@ func shardPaths(args []string) ([]string, error) {
 		}
 		files = append(files, found...)
 	}
-	return files, nil
+	return files, sameFileTwice(files)
+}
+
+// sameFileTwice refuses a partial file named twice, by one path or two
+// (its folder and its own path, "s3/1" and "s3/1/shard-1-of-3.aspf"):
+// the check of the shard set named it as two files that "are both shard
+// 1", the same path twice.
+func sameFileTwice(files []string) error {
+	var seen []os.FileInfo
+	for _, f := range files {
+		st, err := os.Stat(f)
+		if err != nil {
+			seen = append(seen, nil)
+			continue // named as unreadable when it is read
+		}
+		for j, prev := range seen {
+			if prev == nil || !os.SameFile(prev, st) {
+				continue
+			}
+			how := fmt.Sprintf("as %s and as %s", shownPath(files[j]), shownPath(f))
+			if filepath.Clean(files[j]) == filepath.Clean(f) {
+				how = "its folder or its path given twice"
+			}
+			return fault.BadInput(fmt.Errorf("partial file %s is given twice (%s); give each shard's file or folder once", shownPath(files[j]), how))
+		}
+		seen = append(seen, st)
+	}
+	return nil
 }
 
 // shownPath is path p as messages name it: quoted when it holds a line
@@ -397,12 +424,15 @@ func nameSettings(err error, files []string, headers []metrics.ShardHeader) {
 	}
 }
 
-// mixedSplits adds to a refusal of shards of different counts that one
+// mixedSplits adds to a refusal of shards of different runs that one
 // folder holds partial files of several splits (shards run there with
-// --force and another N), and which files to give instead.
+// --force and another N), and which files to give instead. It looks at
+// the shard counts in each folder, not at the field CheckShardSet names:
+// two splits that also differ in settings or seed were named by those
+// alone, without the hint.
 func mixedSplits(err error, files []string, headers []metrics.ShardHeader) {
 	var se *metrics.ShardError
-	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) || !strings.Contains(se.Detail, "differ in shard count") {
+	if !errors.As(err, &se) || !errors.Is(err, metrics.ErrShardMismatch) {
 		return
 	}
 	counts := map[string]map[int]bool{}

@@ -170,3 +170,23 @@ func TestZeroWarning(t *testing.T) {
 		t.Errorf("no record at 0, 0: %q", got)
 	}
 }
+
+// TestMustExistTilde: an input path that starts with ~ (--occurrences=~/x
+// reaches areasweep so: a shell expands ~ only at the start of a word)
+// and does not exist says so, with the flag and path to write apart or
+// the full path; a NAME=PATH flag is told to give the full path.
+func TestMustExistTilde(t *testing.T) {
+	home := t.TempDir()
+	t.Setenv("HOME", home)
+	for _, c := range []struct{ what, want string }{
+		{"occurrences", "not after --occurrences=): write --occurrences and the path apart (--occurrences ~/nope.csv) or give the full path (" + filepath.Join(home, "nope.csv") + ")"},
+		{"region", "(--region ~/nope.csv)"},
+		{"model m", "after NAME= only for some names): give the full path (" + filepath.Join(home, "nope.csv") + ")"},
+		{"extra extent lake", "after NAME= only for some names"},
+	} {
+		err := mustExist(c.what, "~/nope.csv")
+		if err == nil || !strings.Contains(err.Error(), "~/nope.csv does not exist: it starts with ~") || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want %q", c.what, err, c.want)
+		}
+	}
+}

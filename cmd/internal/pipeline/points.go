@@ -357,6 +357,13 @@ func layerInPath(path string) (file, layer string, ok bool) {
 	return "", "", false
 }
 
+// tildeFlag is the flag of the input mustExist names as what ("model
+// m", "occurrences", "region", "extra x"), for TildeAdvice.
+func tildeFlag(what string) string {
+	name, _, _ := strings.Cut(what, " ")
+	return "--" + name
+}
+
 func mustExist(what, path string) error {
 	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
@@ -374,6 +381,9 @@ func mustExist(what, path string) error {
 		}
 		if WindowsPath(path) {
 			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, BackslashAdvice(path)))
+		}
+		if outdir.UnexpandedTilde(path) {
+			return fault.BadInput(fmt.Errorf("%s: %s does not exist: %s", what, path, outdir.TildeAdvice(tildeFlag(what), path)))
 		}
 		if file, layer, ok := layerInPath(path); ok && !strings.HasPrefix(what, "model ") && !strings.HasPrefix(what, "null ") && what != "occurrences" {
 			return fault.BadInput(fmt.Errorf("%s: %s names a layer inside the path (as a GIS shows a layer's source); areasweep takes a file and uses its first layer of polygons: "+

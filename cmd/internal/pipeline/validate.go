@@ -65,7 +65,15 @@ func (o *Options) validateNames() error {
 		}
 	}
 	if _, ok := seen[report.DistanceNullName]; ok && !o.NoDistanceNull {
-		return fmt.Errorf("the name %q is kept for the distance-only null; rename that model (or add --no-distance-null)", report.DistanceNullName)
+		// Named by its flag first, so that a name from the study file is
+		// told with the file and key (fromStudy), as the other names are.
+		flag, what := "--model", "model"
+		for _, m := range o.Nulls {
+			if name, _, err := inputs.ParseNamedPath(m); err == nil && strings.EqualFold(name, report.DistanceNullName) {
+				flag, what = "--null", "null"
+			}
+		}
+		return fmt.Errorf("%s: the name %q is kept for the distance-only null; rename that %s (or add --no-distance-null)", flag, report.DistanceNullName, what)
 	}
 	// Extra layers' names become extent names (user_NAME), compared
 	// ignoring case for the same reason: "Lake" and "lake" could not be

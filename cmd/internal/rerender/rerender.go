@@ -78,6 +78,13 @@ func Run(o Options) (string, error) {
 			}
 			return "", fault.BadInput(fmt.Errorf("%s is the --out folder of a batch, which holds no results.json of its own: each study's report is in its folder (areasweep report %s --force); the summary is rewritten by areasweep batch TABLE --out %s --summary-only", o.Dir, example, o.Dir))
 		}
+		if _, err := os.Stat(filepath.Join(o.Dir, "extents.csv")); err == nil {
+			// The folder of `areasweep extents`: it scores nothing.
+			return "", fault.BadInput(fmt.Errorf("%s holds the extent family that areasweep extents wrote (extents.csv), not a scored run's results.json: the report needs a run; score the study with areasweep run (its --out is then the folder to give)", o.Dir))
+		}
+		if _, err := os.Stat(o.Dir); errors.Is(err, fs.ErrNotExist) {
+			return "", fault.BadInput(fmt.Errorf("%s does not exist: give the --out directory of a finished run", o.Dir))
+		}
 		return "", fault.BadInput(fmt.Errorf("%s not found: give the --out directory of a finished run", path))
 	}
 	if !st.Mode().IsRegular() {
