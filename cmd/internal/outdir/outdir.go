@@ -223,75 +223,126 @@ func foreignError(out string, found []string) error {
 }
 
 func open(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, error) {
+	d, exists, err := check(out, force, inputs, demo, demoInputs, shard)
+	if err != nil {
+		return nil, err
+	}
+	return d.open(out, exists)
+}
+
+// Check makes the refusals of Open (OpenShard when shard) that need no
+// write: those of check, and a folder areasweep could not write in (the
+// one --out's lock file goes in, or the nearest one above it that exists
+// when it is missing, and --out itself when it exists), which the system
+// tells as for the user (access(2); root passes). A run makes them before
+// its long work (reading the points, hashing the inputs), so that a
+// forgotten --force or a folder of another user is refused at once; Open
+// makes them all again when it writes.
+func Check(out string, force bool, inputs []string, shard bool) error {
+	d, exists, err := check(out, force, inputs, false, nil, shard)
+	if err != nil {
+		return err
+	}
+	lockDir := d.parent
+	for {
+		if _, err := os.Stat(lockDir); err == nil || filepath.Dir(lockDir) == lockDir {
+			break
+		}
+		lockDir = filepath.Dir(lockDir)
+	}
+	if err := access(lockDir, 3); err != nil { // W_OK | X_OK
+		return d.lockRefusal(out, lockDir, err)
+	}
+	if exists {
+		if err := access(d.abs, 3); err != nil {
+			return cannotWrite(out, d.abs, err)
+		}
+	}
+	return nil
+}
+
+// access is syscall.Access; tests replace it to meet a folder they cannot
+// write to (they run as root too).
+var access = syscall.Access
+
+// check makes Open's refusals that need no write and returns the Dir they
+// describe and whether --out exists.
+func check(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, bool, error) {
 	if out == "" {
-		return nil, fault.BadInput(errors.New("--out is empty; name an output directory"))
+		return nil, false, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
 	if err := CheckUmask(); err != nil {
-		return nil, err
+		return nil, false, err
 	}
 	if err := TildeError("--out", out); err != nil {
-		return nil, err
+		return nil, false, err
 	}
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
 	abs, err := filepath.Abs(d.Out)
 	if err != nil {
-		return nil, fault.BadInput(fmt.Errorf("--out %s is a relative path and %s", out, CwdGone))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s is a relative path and %s", out, CwdGone))
 	}
 	d.abs = realPath(abs)
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
 	if d.abs == d.parent {
-		return nil, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
 	}
 	if strings.ContainsAny(d.abs, "\n\r") {
-		return nil, fault.BadInput(LineBreakError("--out", out, d.abs))
+		return nil, false, fault.BadInput(LineBreakError("--out", out, d.abs))
 	}
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
-		return nil, err
+		return nil, false, err
 	}
 	if n := d.longestStaged(); n > maxSQLitePath && !shard {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
 	}
 	if n := d.longestBeside(); n > nameMax {
-		return nil, fault.BadInput(fmt.Errorf("--out %s: its last name is %d bytes, and the hidden lock file and staging folder areasweep makes beside it add %d: over the %d bytes a file name may have; choose a name of at most %d bytes", out, len(d.name), n-len(d.name), nameMax, nameMax-(n-len(d.name))))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s: its last name is %d bytes, and the hidden lock file and staging folder areasweep makes beside it add %d: over the %d bytes a file name may have; choose a name of at most %d bytes", out, len(d.name), n-len(d.name), nameMax, nameMax-(n-len(d.name))))
 	}
 	st, err := os.Stat(d.abs)
 	exists := err == nil
 	if exists {
 		if !st.IsDir() {
-			return nil, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the results (a new one, or one areasweep wrote before)", out))
+			return nil, false, fault.BadInput(fmt.Errorf("--out %s exists and is not a directory; name a folder for the results (a new one, or one areasweep wrote before)", out))
 		}
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
-			return nil, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
+			return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
 		}
 		if len(visible(entries)) > 0 && !force {
-			return nil, fault.BadInput(&NotEmptyError{Out: out})
+			return nil, false, fault.BadInput(&NotEmptyError{Out: out})
 		}
 		for _, n := range []string{"figures", "inputs"} {
 			if n == "inputs" && !demo || shard {
 				continue
 			}
 			if st, err := os.Lstat(filepath.Join(d.abs, n)); err == nil && !st.IsDir() {
-				return nil, fault.BadInput(fmt.Errorf("--out %s holds %s, a file where areasweep writes a folder of that name; move or rename it, or choose another --out", out, filepath.Join(d.Out, n)))
+				return nil, false, fault.BadInput(fmt.Errorf("--out %s holds %s, a file where areasweep writes a folder of that name; move or rename it, or choose another --out", out, filepath.Join(d.Out, n)))
 			}
 		}
 		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
-			return nil, fault.BadInput(foreignError(out, found))
+			return nil, false, fault.BadInput(foreignError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
 		if errors.Is(err, syscall.ENOTDIR) {
 			for p := filepath.Dir(d.abs); p != filepath.Dir(p); p = filepath.Dir(p) {
 				if st, serr := os.Stat(p); serr == nil && !st.IsDir() {
-					return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a file, not a folder (%w); choose another --out", out, p, Cause(err)))
+					return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a file, not a folder (%w); choose another --out", out, p, Cause(err)))
 				}
 			}
 		}
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be used (%w); choose another --out", out, Cause(err)))
 	} else if link, target := danglingLink(d.abs); link != "" {
 		// The staging folder would be made beside the link and the whole
 		// sweep run, only for the final move onto the link to fail.
-		return nil, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a symbolic link to %s, which does not exist; create that folder, remove the link, or choose another --out", out, link, target))
+		return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a symbolic link to %s, which does not exist; create that folder, remove the link, or choose another --out", out, link, target))
 	}
+	return d, exists, nil
+}
+
+// open writes what Open makes: the folders above --out that are missing,
+// the lock file and the staging folder.
+func (d *Dir) open(out string, exists bool) (*Dir, error) {
 	// Registered and held from here, so that a signal (AbortAll) waits
 	// until the lock and the staging folder exist and then removes both,
 	// instead of missing them by a few microseconds.
@@ -613,13 +664,7 @@ func (d *Dir) takeLock(out string) error {
 	for try := 0; ; try++ {
 		f, err := openLock(d.lockPath(), os.O_RDWR|os.O_CREATE, 0o666&^Umask)
 		if err != nil {
-			if st, serr := os.Stat(d.abs); serr == nil && st.IsDir() && !DiskFull(err) && syscall.Access(d.abs, 2) == nil {
-				// --out itself can be written (a folder made for you in
-				// one you cannot write to): say why its parent matters.
-				return fault.BadInput(fmt.Errorf("--out %s: cannot write the lock file %s beside it, in %s (%w); areasweep writes there to guard --out: give a folder inside it, such as %s, or one in a folder you can write to",
-					out, filepath.Base(d.lockPath()), d.parent, Cause(err), filepath.Join(d.Out, "run1")))
-			}
-			return cannotWrite(out, d.parent, err)
+			return d.lockRefusal(out, d.parent, err)
 		}
 		if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
 			owner, _ := os.ReadFile(d.lockPath())
@@ -638,6 +683,18 @@ func (d *Dir) takeLock(out string) error {
 		}
 		f.Close()
 	}
+}
+
+// lockRefusal words err, met writing the lock file beside --out in the
+// folder where (its parent, or the nearest one above it that exists).
+func (d *Dir) lockRefusal(out, where string, err error) error {
+	if st, serr := os.Stat(d.abs); serr == nil && st.IsDir() && !DiskFull(err) && access(d.abs, 2) == nil {
+		// --out itself can be written (a folder made for you in one you
+		// cannot write to): say why its parent matters.
+		return fault.BadInput(fmt.Errorf("--out %s: cannot write the lock file %s beside it, in %s (%w); areasweep writes there to guard --out: give a folder inside it, such as %s, or one in a folder you can write to",
+			out, filepath.Base(d.lockPath()), where, Cause(err), filepath.Join(d.Out, "run1")))
+	}
+	return cannotWrite(out, where, err)
 }
 
 // sameFile reports whether the open file f is still the file at path.

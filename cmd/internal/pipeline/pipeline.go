@@ -60,6 +60,24 @@ func RunInto(ctx context.Context, o Options, io IO, d *outdir.Dir) (*report.Resu
 	return s.Finish(ctx)
 }
 
+// checkOut makes the refusals of the output folder that need no write
+// (outdir.Check) before the long work of reading the points and hashing
+// the inputs; Prepare opens it after that work (nothing is written before
+// the inputs are checked), when it is not given.
+func (s *Study) checkOut() error {
+	if s.dir != nil {
+		return nil
+	}
+	return outdir.Check(s.o.Out, s.o.Force, s.outInputs(), s.o.Shard)
+}
+
+// outInputs are the files --out may not hold or be: the inputs, the study
+// file and their sidecars found so far.
+func (s *Study) outInputs() []string {
+	o := s.o
+	return append(append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...), s.sidecars...)
+}
+
 // Study is one run in progress: its settings, grid, points, family and the
 // results so far. Make it with Prepare, run each of its Passes with Pass
 // (or Plan, a source of sums and Score), then Finish it; Close it on every
@@ -128,6 +146,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		checkSetup,
 		s.checkTempDir,
 		s.checkFiles,
+		s.checkOut,
 		s.openGrid,
 		s.checkMemory,
 		func() error { return s.timed("occurrences read, placed and sampled", s.readPoints) },
@@ -146,7 +165,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 		if o.Shard {
 			open = outdir.OpenShard
 		}
-		if s.dir, err = open(o.Out, o.Force, append(append(append(o.InputPaths(), o.StudyFile), o.MoreInputs...), s.sidecars...)); err != nil {
+		if s.dir, err = open(o.Out, o.Force, s.outInputs()); err != nil {
 			s.Close() // the first model's raster
 			return nil, err
 		}
