@@ -163,17 +163,18 @@ func (rs *resampler) gather(b int, ids []int, dst []int32) {
 
 // pcgState is the state of a math/rand/v2 PCG (rand.NewPCG(seed1, seed2)
 // starts at hi = seed1, lo = seed2), held by value: addDraws keeps it in
-// registers through its loop, where intN's *rand.PCG goes through memory
-// for each draw (a store and a load on the chain of multiplications that
-// each draw waits for).
+// registers through its loop, where drawing through a *rand.PCG (intN,
+// now the reference in the tests) took its state through memory for each
+// draw (a store and a load on the chain of multiplications that each draw
+// waits for).
 type pcgState struct{ hi, lo uint64 }
 
-// addDraws draws r numbers i = rand.New(p).IntN(n) (n > 0) from p, as
-// intN does, in order, adding 1 to counts[member[i]] for each (to
+// addDraws draws r numbers i = rand.New(p).IntN(n) (n > 0) from p, in
+// order, adding 1 to counts[member[i]] for each (to
 // counts[i] when member is nil), and returns the state after them. The
 // operations are PCG.Uint64's (math/rand/v2: a 128-bit LCG step, then the
-// DXSM output) and intN's (Lemire's multiply-shift with rejection), the
-// same numbers in the same order (TestAddDrawsSameAsRand).
+// DXSM output) and rand.Rand.IntN's (uint64n: Lemire's multiply-shift
+// with rejection, which its 32-bit path reproduces exactly), the same numbers in the same order (TestAddDrawsSameAsRand).
 func addDraws[C int | int32](p pcgState, r, n int, member []int, counts []C) pcgState {
 	const (
 		mulHi    = 2549297995355413924
@@ -196,7 +197,7 @@ func addDraws[C int | int32](p pcgState, r, n int, member []int, counts []C) pcg
 		return h
 	}
 	u := uint64(n)
-	// draw is intN on the state in hi and lo.
+	// draw is rand.Rand.IntN(n) on the state in hi and lo.
 	draw := func() uint64 {
 		if u&(u-1) == 0 { // a power of two: mask
 			return next() & (u - 1)
