@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math/bits"
-	"math/rand/v2"
 	"runtime"
 	"sync"
 	"weak"
@@ -21,32 +20,8 @@ type Draws struct {
 // resample b. counts must have length N.
 func (d Draws) fill(b int, counts []int32) {
 	clear(counts)
-	src := rand.NewPCG(d.Seed, uint64(b))
-	for k := 0; k < d.N; k++ {
-		counts[intN(src, d.N)]++ // rand.New(src).IntN(d.N)
-	}
-}
-
-// intN returns rand.New(src).IntN(n) for n > 0, the same number from the
-// same draws of src (math/rand/v2's uint64n: Lemire's multiply-shift with
-// rejection, which its 32-bit path reproduces exactly), without the
-// interface call per draw: the published bootstrap draws f n positions per
-// resample, 45 million in a run of 3 models x 60 extents, and the paired
-// resamples N per resample, drawn again wherever they are used when their
-// table is not kept (50,000 test points: 50 million per use).
-func intN(src *rand.PCG, n int) int {
-	u := uint64(n)
-	if u&(u-1) == 0 { // a power of two: mask
-		return int(src.Uint64() & (u - 1))
-	}
-	hi, lo := bits.Mul64(src.Uint64(), u)
-	if lo < u {
-		thresh := -u % u
-		for lo < thresh {
-			hi, lo = bits.Mul64(src.Uint64(), u)
-		}
-	}
-	return int(hi)
+	// rand.New(rand.NewPCG(d.Seed, b)).IntN(d.N), N times.
+	addDraws(pcgState{d.Seed, uint64(b)}, d.N, d.N, nil, counts)
 }
 
 // MaxDrawTableBytes is the largest table of resample counts kept for one
@@ -184,4 +159,67 @@ func (rs *resampler) gather(b int, ids []int, dst []int32) {
 	for k, id := range ids {
 		dst[k] = rs.global[id]
 	}
+}
+
+// pcgState is the state of a math/rand/v2 PCG (rand.NewPCG(seed1, seed2)
+// starts at hi = seed1, lo = seed2), held by value: addDraws keeps it in
+// registers through its loop, where drawing through a *rand.PCG (intN,
+// now the reference in the tests) took its state through memory for each
+// draw (a store and a load on the chain of multiplications that each draw
+// waits for).
+type pcgState struct{ hi, lo uint64 }
+
+// addDraws draws r numbers i = rand.New(p).IntN(n) (n > 0) from p, in
+// order, adding 1 to counts[member[i]] for each (to
+// counts[i] when member is nil), and returns the state after them. The
+// operations are PCG.Uint64's (math/rand/v2: a 128-bit LCG step, then the
+// DXSM output) and rand.Rand.IntN's (uint64n: Lemire's multiply-shift
+// with rejection, which its 32-bit path reproduces exactly), the same numbers in the same order (TestAddDrawsSameAsRand).
+func addDraws[C int | int32](p pcgState, r, n int, member []int, counts []C) pcgState {
+	const (
+		mulHi    = 2549297995355413924
+		mulLo    = 4865540595714422341
+		incHi    = 6364136223846793005
+		incLo    = 1442695040888963407
+		cheapMul = 0xda942042e4dd58b5
+	)
+	hi, lo := p.hi, p.lo
+	next := func() uint64 {
+		h, l := bits.Mul64(lo, mulLo)
+		h += hi*mulLo + lo*mulHi
+		l, c := bits.Add64(l, incLo, 0)
+		h, _ = bits.Add64(h, incHi, c)
+		hi, lo = h, l
+		h ^= h >> 32
+		h *= cheapMul
+		h ^= h >> 48
+		h *= l | 1
+		return h
+	}
+	u := uint64(n)
+	// draw is rand.Rand.IntN(n) on the state in hi and lo.
+	draw := func() uint64 {
+		if u&(u-1) == 0 { // a power of two: mask
+			return next() & (u - 1)
+		}
+		h, l := bits.Mul64(next(), u)
+		if l < u {
+			thresh := -u % u
+			for l < thresh {
+				h, l = bits.Mul64(next(), u)
+			}
+		}
+		return h
+	}
+	if member == nil {
+		for range r {
+			counts[draw()]++
+		}
+	} else {
+		member = member[:n]
+		for range r {
+			counts[member[draw()]]++
+		}
+	}
+	return pcgState{hi, lo}
 }

@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math"
-	"math/rand/v2"
 )
 
 // pcgStream is xored with Settings.Seed to form the second PCG seed word.
@@ -392,7 +391,7 @@ func partialROC(p *presences, s Settings) []PartialROC {
 
 	B := s.Iterations
 	r := ResampleSize(s.Fraction, p.n)
-	rng := rand.NewPCG(s.Seed, s.Seed^pcgStream)
+	rng := pcgState{s.Seed, s.Seed ^ pcgStream} // rand.NewPCG(s.Seed, s.Seed^pcgStream)
 	counts := make([]int, len(p.j))
 	ratios := make([][]float64, len(s.E))
 	for i := range ratios {
@@ -402,9 +401,7 @@ func partialROC(p *presences, s Settings) []PartialROC {
 	var sc areaScratch
 	for it := 0; it < B; it++ {
 		clear(counts)
-		for k := 0; k < r; k++ {
-			counts[p.member[intN(rng, p.n)]]++
-		}
+		rng = addDraws(rng, r, p.n, p.member, counts)
 		p.partialAreas(counts, r, s.E, prs, &sc)
 		for i, pr := range prs {
 			if pr.how != crossFormed {

@@ -2,6 +2,7 @@ package metrics
 
 import (
 	"math"
+	"math/bits"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -129,6 +130,106 @@ func TestPartialAreaFromCrossing(t *testing.T) {
 	p := &presences{count: []int{1}, xgt: []float64{0}, xge: []float64{0.5}}
 	if got, want := p.partialArea([]int{0}, 0, 0.05), p.partialAreaReference([]int{0}, 0, 0.05); !same(got, want) {
 		t.Errorf("r = 0: %+v, want %+v", got, want)
+	}
+}
+
+// intN returns rand.New(src).IntN(n) for n > 0, the same number from the
+// same draws of src (math/rand/v2's uint64n: Lemire's multiply-shift with
+// rejection, which its 32-bit path reproduces exactly), without the
+// interface call per draw. The bootstraps drew with it until addDraws,
+// which makes the same draws with the PCG's state in registers; it is the
+// reference of TestAddDrawsSameAsRand and BenchmarkAddDraws.
+func intN(src *rand.PCG, n int) int {
+	u := uint64(n)
+	if u&(u-1) == 0 { // a power of two: mask
+		return int(src.Uint64() & (u - 1))
+	}
+	hi, lo := bits.Mul64(src.Uint64(), u)
+	if lo < u {
+		thresh := -u % u
+		for lo < thresh {
+			hi, lo = bits.Mul64(src.Uint64(), u)
+		}
+	}
+	return int(hi)
+}
+
+// TestAddDrawsSameAsRand: addDraws adds up the draws of rand.Rand.IntN
+// from the same PCG (the counts of drawing IntN r times, by member or by
+// number), and returns the state the PCG is left in (the next call goes
+// on with the same numbers): for powers of two, small and large n, r = 0
+// to 3n, counts of both types. (Its rejection loop is intN's, checked by
+// TestIntNSameAsRand on the n near 2^63 where rejections happen; counts of
+// that size cannot be made.)
+func TestAddDrawsSameAsRand(t *testing.T) {
+	for _, n := range []int{1, 2, 3, 7, 64, 100, 250, 499, 500, 4096, 1<<20 + 3} {
+		for seed := uint64(0); seed < 3; seed++ {
+			groups := max(1, n/3)
+			member := make([]int, n)
+			for i := range member {
+				member[i] = (i * 7) % groups
+			}
+			ref := rand.New(rand.NewPCG(seed, seed^pcgStream))
+			// pm draws by member into int counts, pn by number into int32
+			// counts: each goes on from where its last call left it.
+			pm, pn := pcgState{seed, seed ^ pcgStream}, pcgState{seed, seed ^ pcgStream}
+			for _, r := range []int{0, 1, n/2 + 1, 3 * n} {
+				if n > 4096 && r > n {
+					continue
+				}
+				wantM, wantN := make([]int, groups), make([]int32, n)
+				for range r {
+					d := ref.IntN(n)
+					wantM[member[d]]++
+					wantN[d]++
+				}
+				gotM, gotN := make([]int, groups), make([]int32, n)
+				pm = addDraws(pm, r, n, member, gotM)
+				pn = addDraws(pn, r, n, nil, gotN)
+				if !slices.Equal(gotM, wantM) {
+					t.Fatalf("n=%d seed=%d r=%d: counts by member differ from IntN's", n, seed, r)
+				}
+				if !slices.Equal(gotN, wantN) {
+					t.Fatalf("n=%d seed=%d r=%d: counts by number differ from IntN's", n, seed, r)
+				}
+			}
+		}
+	}
+}
+
+// BenchmarkAddDraws times the draws of one bootstrap of the published
+// partial ROC (B = 1000 resamples of 250 of 500 test presences, as a
+// model x extent of the 27M-cell study makes): addDraws, and intN on a
+// *rand.PCG as before it (the same numbers).
+func BenchmarkAddDraws(b *testing.B) {
+	const n, r, iters = 500, 250, 1000
+	member := make([]int, n)
+	for i := range member {
+		member[i] = i
+	}
+	counts := make([]int, n)
+	for _, how := range []string{"addDraws", "intN"} {
+		b.Run(how, func(b *testing.B) {
+			stop := startCPU(b)
+			for i := 0; i < b.N; i++ {
+				if how == "addDraws" {
+					p := pcgState{9, 9 ^ pcgStream}
+					for range iters {
+						clear(counts)
+						p = addDraws(p, r, n, member, counts)
+					}
+				} else {
+					src := rand.NewPCG(9, 9^pcgStream)
+					for range iters {
+						clear(counts)
+						for range r {
+							counts[member[intN(src, n)]]++
+						}
+					}
+				}
+			}
+			stop()
+		})
 	}
 }
 
