@@ -80,6 +80,11 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 				if err != nil {
 					return fault.BadInput(fmt.Errorf("--memory %q: %w", memory, err))
 				}
+				if m < 1<<20 {
+					// Budgets are counted in MiB: a smaller one would
+					// refuse every study as needing more than 0 MiB.
+					return fault.BadInput(fmt.Errorf("--memory %q is less than 1 MiB; it is the memory the studies running at once may use together (a study needs a few hundred MiB or more): give a size such as 8G", memory))
+				}
 				opts.Memory = m
 			}
 			if err := opts.validate(); err != nil {

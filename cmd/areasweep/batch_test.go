@@ -370,6 +370,13 @@ func TestBatchMemoryBudget(t *testing.T) {
 	if _, se, code := runBin(t, "batch", table, "--out", out, "--memory", "lots"); code != 2 || !strings.Contains(se, "--memory") {
 		t.Errorf("--memory lots: exit %d\n%s", code, se)
 	}
+	// Under 1 MiB (the budget's unit) it is refused at once, not study by
+	// study as "needs more than the budget of 0 MiB".
+	for _, m := range []string{"1K", "2048"} {
+		if _, se, code := runBin(t, "batch", table, "--out", filepath.Join(t.TempDir(), "tiny"), "--memory", m); code != 2 || !strings.Contains(se, "--memory \""+m+"\" is less than 1 MiB") {
+			t.Errorf("--memory %s: exit %d\n%s", m, code, se)
+		}
+	}
 }
 
 // TestBatchShards runs the batch of batchTable with every study split into

@@ -322,6 +322,27 @@ func TestLoadStudyResolvesAgainstFileDir(t *testing.T) {
 		}
 	})
 
+	// A symbolic link to a study file: its paths are taken from the link's
+	// folder, as the README says (a link to a shared study file beside
+	// one's own inputs uses them).
+	t.Run("symbolic link", func(t *testing.T) {
+		mine := filepath.Join(dir, "mine")
+		if err := os.Mkdir(mine, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		link := filepath.Join(mine, "study.yaml")
+		if err := os.Symlink(path, link); err != nil {
+			t.Fatal(err)
+		}
+		st, err := LoadStudy(link)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := (*st)["region"]; got != filepath.Join(mine, "r.gpkg") {
+			t.Fatalf("region %q, want %q (the link's folder)", got, filepath.Join(mine, "r.gpkg"))
+		}
+	})
+
 	t.Run("tilde is the home folder", func(t *testing.T) {
 		home := t.TempDir()
 		t.Setenv("HOME", home)
