@@ -17,6 +17,7 @@ import (
 	"time"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pass"
 	"areasweep/cmd/internal/settings"
 	"areasweep/cmd/internal/shardfile"
@@ -56,6 +57,11 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	t0 := time.Now()
 	files, err := shardPaths(mo.Files)
 	if err != nil {
+		return nil, err
+	}
+	// The refusals of --out that need no write, before the partial files
+	// are read (Prepare makes them again with the inputs they record).
+	if err := outdir.Check(mo.Out, mo.Force, files, false); err != nil {
 		return nil, err
 	}
 	merged, first, err := readShards(files, mo.Version)
