@@ -514,15 +514,14 @@ type planned interface {
 func (r *Raster) each(out chan<- block, free chan []float64) error {
 	defer close(out)
 	src := r.sharedSource()
-	return r.eachBlock(func(x0, y0, w, h int) error {
-		buf := <-free
-		buf = buf[:w*h]
-		if err := src.ReadBlock(x0, y0, w, h, buf); err != nil {
+	for b := range r.readBlocks() {
+		b.buf = (<-free)[:b.w*b.h]
+		if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, b.buf); err != nil {
 			return err
 		}
-		out <- block{x0: x0, y0: y0, w: w, h: h, buf: buf}
-		return nil
-	})
+		out <- b
+	}
+	return nil
 }
 
 // Blocks returns the number of blocks of the raster, for progress.

@@ -1,9 +1,5 @@
 package pass
 
-import (
-	"errors"
-)
-
 // HasData reports whether the band holds a valid model value (not no
 // data, NaN or infinite, after scale and offset), reading its blocks at
 // full resolution in order and stopping at the first block that holds one.
@@ -17,35 +13,25 @@ func (r *Raster) HasData(maxCells int) (any, known bool, err error) {
 	read := 0
 	src := r.sharedSource()
 	defer r.holdCache(1)()
-	errFound, errTooMany := errors.New("found"), errors.New("too many")
-	err = r.eachBlock(func(x0, y0, w, h int) error {
+	for b := range r.readBlocks() {
 		if read >= maxCells {
-			return errTooMany
+			return false, false, nil
 		}
-		n := w * h
+		n := b.w * b.h
 		read += n
 		if cap(buf) < n {
 			buf = make([]float64, n)
 		}
 		buf = buf[:n]
-		if err := src.ReadBlock(x0, y0, w, h, buf); err != nil {
-			return err
+		if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, buf); err != nil {
+			return false, false, err
 		}
 		r.decode(buf)
 		for _, v := range buf {
 			if r.valid(v) {
-				return errFound
+				return true, true, nil
 			}
 		}
-		return nil
-	})
-	switch err {
-	case nil:
-		return false, true, nil
-	case errFound:
-		return true, true, nil
-	case errTooMany:
-		return false, false, nil
 	}
-	return false, false, err
+	return false, true, nil
 }

@@ -2,6 +2,7 @@ package pass
 
 import (
 	"fmt"
+	"iter"
 	"runtime"
 
 	"areasweep/extent"
@@ -121,18 +122,18 @@ func readers(workers int) int {
 	return workers
 }
 
-// eachBlock calls f with the position and size of every block a pass
-// reads (the band's blocks, or its windows), row by row, until f returns
-// an error, which it returns.
-func (r *Raster) eachBlock(f func(x0, y0, w, h int) error) error {
-	for y0 := 0; y0 < r.height; y0 += r.blockH {
-		for x0 := 0; x0 < r.width; x0 += r.blockW {
-			if err := f(x0, y0, min(r.blockW, r.width-x0), min(r.blockH, r.height-y0)); err != nil {
-				return err
+// readBlocks yields the position and size of every block a pass reads
+// (the band's blocks, or its windows), row by row.
+func (r *Raster) readBlocks() iter.Seq[block] {
+	return func(yield func(block) bool) {
+		for y0 := 0; y0 < r.height; y0 += r.blockH {
+			for x0 := 0; x0 < r.width; x0 += r.blockW {
+				if !yield(block{x0: x0, y0: y0, w: min(r.blockW, r.width-x0), h: min(r.blockH, r.height-y0)}) {
+					return
+				}
 			}
 		}
 	}
-	return nil
 }
 
 // Strips describes how a windowed raster is read, for run.log ("in 24
