@@ -349,8 +349,10 @@ func fewerList(s *Sensitivity, fewer []string, someHoldAll bool) string {
 // stands in for it (BaseExtent), that extent named as the reference with
 // the reason the base extent was left out.
 func referenceText(s *Sensitivity, format string) string {
-	if s.BaseExtent == vocab.BaseID {
-		return fmt.Sprintf(format, s.BaseExtent)
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
+		// No extent scored (BaseExtent ""): none stands in, and the
+		// differences would be taken from the base extent.
+		return fmt.Sprintf(format, vocab.BaseID)
 	}
 	why := ""
 	for _, e := range s.SkippedExtents {
@@ -365,7 +367,7 @@ func referenceText(s *Sensitivity, format string) string {
 // its name already ("the base extent, base," read as two extents): "the
 // base extent", or the extent standing in for it, with why.
 func referenceName(s *Sensitivity) string {
-	if s.BaseExtent == vocab.BaseID {
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
 		return "the base extent"
 	}
 	return referenceText(s, "%s")
@@ -374,7 +376,7 @@ func referenceName(s *Sensitivity) string {
 // referenceWord is "the base extent", or "the reference extent" when
 // another extent stands in for it (referenceText).
 func referenceWord(s *Sensitivity) string {
-	if s.BaseExtent == vocab.BaseID {
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
 		return "the base extent"
 	}
 	return "the reference extent"

@@ -142,6 +142,10 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: JudgementUndetermined,
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
+	if bs == nil && a.base == "" {
+		mv.Sentence = fmt.Sprintf("%s of %s: not scored on any extent, so no difference can be formed.", upperFirst(m.Label), model)
+		return mv
+	}
 	if bs == nil {
 		mv.Sentence = fmt.Sprintf("%s of %s: not scored on %s %s, so no difference from it can be formed.", upperFirst(m.Label), model, baseWord(a.base), a.base)
 		return mv
@@ -535,7 +539,7 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
 	}
 	from := "the base extent"
-	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID {
+	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID && mvs[0].Base != "" {
 		// The first scored extent stands in for a base extent that could
 		// not be scored: name it, not "the base extent".
 		from = "the reference extent " + mvs[0].Base

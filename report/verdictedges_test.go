@@ -236,3 +236,35 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 		t.Error("no Boyce row of the differences table says its intervals are not calibrated")
 	}
 }
+
+// TestNoExtentScoredReferenceWords: where no model could be scored on any
+// extent (a constant model alone, with the distance-only null scored:
+// hD's degenerate-data hunt), there is no reference extent, and the
+// sentences that name it printed an empty id: "not scored on the
+// reference extent , so no difference", "minus the score on , in place of
+// the base extent base" (the page), "difference from the reference
+// extent , in place of the base extent base (left out: no model could be
+// scored) lies within" (methods.md).
+func TestNoExtentScoredReferenceWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+	}
+	r.Paired, r.Rings = nil, nil
+	s := analyzed(t, r)
+	if s.BaseExtent != "" {
+		t.Fatalf("base extent %q, want none", s.BaseExtent)
+	}
+	bad := []string{" , ", " ,", "on , ", "reference extent", "in place of the base extent"}
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil {
+		t.Fatal("no AUC verdict of good")
+	}
+	checkWords(t, "verdict", mv.Sentence, []string{"AUC of good: not scored on any extent, so no difference can be formed."}, bad)
+	checkWords(t, "methods", methodsText(r), []string{"every 95% interval of its difference from the base extent (base) lies within"}, bad)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on base, on the test points"}, bad)
+}
