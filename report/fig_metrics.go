@@ -478,7 +478,9 @@ func fewResampleWords(st Settings) string {
 // undrawnSentence names, per metric, the models and nulls with no marker
 // in its panel (the score undefined on every extent scored: a model of two
 // values has no Boyce index), and the metrics with no panel at all, so
-// that a line missing from a panel is not read as hidden behind another.
+// that a line missing from a panel is not read as hidden behind another;
+// a model or null scored on no extent (a constant raster) is named once,
+// as not scored.
 func undrawnSentence(r *Results) string {
 	s := r.Sensitivity
 	if s == nil {
@@ -493,6 +495,25 @@ func undrawnSentence(r *Results) string {
 	for _, pn := range l.left {
 		noRoom[pn.m.Key] = true
 	}
+	// A model or null scored on no extent (a constant raster) has no
+	// score to be undefined: named once, as not scored.
+	scored := map[string]bool{}
+	for _, sc := range r.Scores {
+		if sc.Scored {
+			scored[sc.Model] = true
+		}
+	}
+	var unscored []string
+	for _, model := range s.ModelNames {
+		if !scored[model] {
+			unscored = append(unscored, model)
+		}
+	}
+	for _, nm := range nulls(r) {
+		if !scored[nm.Name] {
+			unscored = append(unscored, ModelLabel(r, nm.Name))
+		}
+	}
 	var parts, none []string
 	for _, m := range s.Metrics {
 		pn, ok := drawn[m.Key]
@@ -505,12 +526,12 @@ func undrawnSentence(r *Results) string {
 		}
 		var names []string
 		for i, model := range s.ModelNames {
-			if len(pn.pts[i]) == 0 {
+			if len(pn.pts[i]) == 0 && scored[model] {
 				names = append(names, model)
 			}
 		}
 		for j, nm := range nulls(r) {
-			if len(pn.nulls[j]) == 0 {
+			if len(pn.nulls[j]) == 0 && scored[nm.Name] {
 				names = append(names, ModelLabel(r, nm.Name))
 			}
 		}
@@ -519,10 +540,13 @@ func undrawnSentence(r *Results) string {
 		}
 	}
 	out := ""
+	if len(unscored) > 0 {
+		out += " Not scored on any extent (the Scores table says why), so not drawn: " + joinList(unscored) + "."
+	}
 	if len(parts) > 0 {
 		out += " Undefined on every extent, so not drawn: " + strings.Join(parts, "; ") + "."
 	}
-	if len(none) > 0 {
+	if len(none) > 0 && len(scored) > 0 {
 		out += " No panel (undefined for every model on every extent): " + joinList(none) + "."
 	}
 	if len(l.left) > 0 {

@@ -162,3 +162,29 @@ func TestROCNoBarWithoutRamp(t *testing.T) {
 		t.Errorf("caption of a full family lacks the colour bar: %s", f.Caption)
 	}
 }
+
+// TestMetricsCaptionNamesUnscored: a constant model is scored on no
+// extent, and the metrics figure's caption called each of its scores
+// "Undefined on every extent" (hD's degenerate-data hunt: a constant
+// model beside the distance-only null); with no model or null scored at
+// all it said "No panel (undefined for every model on every extent)". A
+// model scored nowhere has no score to be undefined: the caption says it
+// was not scored.
+func TestMetricsCaptionNamesUnscored(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
+	analyzed(t, r)
+	got := undrawnSentence(r)
+	checkWords(t, "one model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: broad."}, []string{"of broad", "Undefined"})
+	for i := range r.Scores {
+		r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+	}
+	r.Paired, r.Rings = nil, nil
+	analyzed(t, r)
+	got = undrawnSentence(r)
+	checkWords(t, "every model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: good, truncated and broad."}, []string{"Undefined", "No panel"})
+}
