@@ -475,6 +475,32 @@ func fewResampleWords(st Settings) string {
 	return fmt.Sprintf("where a resample draws fewer than %d test records (an extent with fewer than %d at %s%%)", MinPairedPoints, minBootstrapPoints(st.ResampleFraction), fmtG(100*st.ResampleFraction))
 }
 
+// scoredModels returns the set of models and nulls scored on at least
+// one extent, and the labels of the others (a constant raster), models
+// in ModelNames order, then nulls.
+func scoredModels(r *Results) (map[string]bool, []string) {
+	scored := map[string]bool{}
+	for _, sc := range r.Scores {
+		if sc.Scored {
+			scored[sc.Model] = true
+		}
+	}
+	var unscored []string
+	if r.Sensitivity != nil {
+		for _, model := range r.Sensitivity.ModelNames {
+			if !scored[model] {
+				unscored = append(unscored, model)
+			}
+		}
+	}
+	for _, nm := range nulls(r) {
+		if !scored[nm.Name] {
+			unscored = append(unscored, ModelLabel(r, nm.Name))
+		}
+	}
+	return scored, unscored
+}
+
 // undrawnSentence names, per metric, the models and nulls with no marker
 // in its panel (the score undefined on every extent scored: a model of two
 // values has no Boyce index), and the metrics with no panel at all, so
@@ -497,23 +523,7 @@ func undrawnSentence(r *Results) string {
 	}
 	// A model or null scored on no extent (a constant raster) has no
 	// score to be undefined: named once, as not scored.
-	scored := map[string]bool{}
-	for _, sc := range r.Scores {
-		if sc.Scored {
-			scored[sc.Model] = true
-		}
-	}
-	var unscored []string
-	for _, model := range s.ModelNames {
-		if !scored[model] {
-			unscored = append(unscored, model)
-		}
-	}
-	for _, nm := range nulls(r) {
-		if !scored[nm.Name] {
-			unscored = append(unscored, ModelLabel(r, nm.Name))
-		}
-	}
+	scored, unscored := scoredModels(r)
 	var parts, none []string
 	for _, m := range s.Metrics {
 		pn, ok := drawn[m.Key]

@@ -188,3 +188,23 @@ func TestMetricsCaptionNamesUnscored(t *testing.T) {
 	got = undrawnSentence(r)
 	checkWords(t, "every model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: good, truncated and broad."}, []string{"Undefined", "No panel"})
 }
+
+// TestROCCaptionNamesUnscored: the ROC figure draws a panel for every
+// model and null; a constant model's panel is empty (no extent scored it:
+// hD's degenerate-data hunt), and the caption said nothing of it, so an
+// empty panel read as curves lost in drawing. The caption names it.
+func TestROCCaptionNamesUnscored(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
+	analyzed(t, r)
+	es := r.Extents
+	checkWords(t, "one model constant", rocCaption(r, es, len(es), false, 0.05),
+		[]string{"Not scored on any extent (the Scores table says why), so its panel is empty: broad."}, []string{"good.", "truncated."})
+	r = loadSample(t)
+	analyzed(t, r)
+	checkWords(t, "sample", rocCaption(r, es, len(es), false, 0.05), nil, []string{"Not scored on any extent"})
+}
