@@ -606,11 +606,19 @@ func metricsCaption(r *Results) string {
 	}
 	if st.Iterations >= 1 {
 		bar := ""
-		if st.Iterations >= 2 {
+		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
+		case st.Iterations < 2:
+		case st.Iterations < MinPercentileResamples:
+			// No extent has a bar (BootstrapReadable).
+			bar = fmt.Sprintf(", with no bar: fewer than %d resamples place no 2.5th or 97.5th percentile inside the resampled values (our cut-off)", MinPercentileResamples)
+		case fewPts && fewB:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar %s or where fewer than %d resamples formed a ratio, our cut-offs)", fewResampleWords(st), MinPercentileResamples)
+		case fewPts:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar %s, our cut-off)", fewResampleWords(st))
+		case fewB:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar where fewer than %d resamples formed a ratio, our cut-off)", MinPercentileResamples)
+		default:
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
-			if fewResamplePoints(r) {
-				bar += fmt.Sprintf(" (no bar %s, our cut-off)", fewResampleWords(st))
-			}
 		}
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",

@@ -208,3 +208,41 @@ func TestROCCaptionNamesUnscored(t *testing.T) {
 	analyzed(t, r)
 	checkWords(t, "sample", rocCaption(r, es, len(es), false, 0.05), nil, []string{"Not scored on any extent"})
 }
+
+// TestMetricsCaptionFewFormedResamples: with --iterations 2 to 39 (or an
+// extent where fewer than 40 resamples of the published bootstrap formed a
+// ratio) the figure draws no partial ROC bar there (BootstrapReadable),
+// yet the caption said "the bar spans their 2.5th to 97.5th percentiles"
+// without a word of it (hD's degenerate-data hunt: --iterations 2
+// --fraction 1, no bar on any extent); the methods text said so already.
+func TestMetricsCaptionFewFormedResamples(t *testing.T) {
+	const spans = "the bar spans their 2.5th to 97.5th percentiles"
+	r := loadSample(t)
+	r.Settings.Iterations = 20
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			pr := &r.Scores[i].PartialROC[j]
+			pr.Iterations, pr.NotFormed, pr.ResampleSize = 20, 0, MinPairedPoints
+		}
+	}
+	analyzed(t, r)
+	checkWords(t, "20 resamples", metricsCaption(r),
+		[]string{"Partial ROC: the point is the mean ratio of the 20 resamples", "(the published bootstrap), with no bar: fewer than 40 resamples place no 2.5th or 97.5th percentile inside the resampled values (our cut-off); the full-sample"},
+		[]string{spans})
+	r = loadSample(t)
+	r.Settings.Iterations = 200
+	n := 0
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			pr := &r.Scores[i].PartialROC[j]
+			pr.Iterations, pr.NotFormed, pr.ResampleSize = 200, 0, MinPairedPoints
+			if r.Scores[i].Scored && n == 0 {
+				pr.NotFormed = 170 // 30 formed
+				n++
+			}
+		}
+	}
+	analyzed(t, r)
+	checkWords(t, "30 formed on one extent", metricsCaption(r),
+		[]string{spans + " (no bar where fewer than 40 resamples formed a ratio, our cut-off)"}, nil)
+}
