@@ -136,13 +136,23 @@ func baseWord(base string) string {
 	return "the base extent"
 }
 
+// scoredSomewhere tells whether model is scored on at least one extent.
+func (a *analysis) scoredSomewhere(model string) bool {
+	for _, e := range a.r.Extents {
+		if a.score(model, e.ID) != nil {
+			return true
+		}
+	}
+	return false
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: JudgementUndetermined,
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
-	if bs == nil && a.base == "" {
+	if bs == nil && !a.scoredSomewhere(model) {
 		mv.Sentence = fmt.Sprintf("%s of %s: not scored on any extent, so no difference can be formed.", upperFirst(m.Label), model)
 		return mv
 	}

@@ -268,3 +268,32 @@ func TestNoExtentScoredReferenceWords(t *testing.T) {
 	}
 	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on base, on the test points"}, bad)
 }
+
+// TestModelScoredNowhereVerdictWords: a model scored on no extent (a
+// constant raster, or no data at any test point: hD's degenerate-data
+// hunt) beside one scored everywhere; its verdicts said "not scored on the
+// base extent base", true but read as if it were scored elsewhere.
+func TestModelScoredNowhereVerdictWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "broad")
+	if mv == nil {
+		t.Fatal("no AUC verdict of broad")
+	}
+	checkWords(t, "scored nowhere", mv.Sentence, []string{"AUC of broad: not scored on any extent, so no difference can be formed."}, []string{"base extent"})
+	// Scored somewhere but not on base: the sentence names the base extent.
+	r = loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "truncated" && r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has no data on 6% of the extent's cells"
+		}
+	}
+	s = analyzed(t, r)
+	mv = s.findModelVerdict("auc", "truncated")
+	checkWords(t, "not on base", mv.Sentence, []string{"AUC of truncated: not scored on the base extent base, so no difference from it can be formed."}, []string{"any extent"})
+}
