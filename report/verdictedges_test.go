@@ -297,3 +297,33 @@ func TestModelScoredNowhereVerdictWords(t *testing.T) {
 	mv = s.findModelVerdict("auc", "truncated")
 	checkWords(t, "not on base", mv.Sentence, []string{"AUC of truncated: not scored on the base extent base, so no difference from it can be formed."}, []string{"any extent"})
 }
+
+// TestPctFineShortOfWhole: a model whose minimum covers 99.87% of the
+// valid area (two cells of 1,600 hold other values: hD's degenerate-data
+// hunt) was said to cover "100% of the valid area", the words of a
+// constant model. Expected strings: the shares' percentages written out
+// (99.875%, 99.99%, 99.5%).
+func TestPctFineShortOfWhole(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{1, "100%"}, {0.99875, "99.9%"}, {0.9999, "99.99%"}, {0.995, "99.5%"}, {0.994, "99%"}, {0.5, "50%"}, {0.004, "0.4%"}, {0, "0%"},
+	} {
+		if got := pctFine(c.v); got != c.want {
+			t.Errorf("pctFine(%v) = %q, want %q", c.v, got, c.want)
+		}
+	}
+	r := loadSample(t)
+	for i := range r.Models {
+		if r.Models[i].Name == "truncated" {
+			r.Models[i].FloorShare = 0.99875
+		}
+	}
+	s := analyzed(t, r)
+	for _, tc := range s.Truncation {
+		if tc.Model == "truncated" {
+			checkWords(t, "truncation", tc.Sentence, []string{"its minimum value covers 99.9% of the valid area"}, []string{"100%", "constant"})
+		}
+	}
+}
