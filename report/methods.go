@@ -502,7 +502,7 @@ func resultNumbers(r *Results) string {
 	}
 	if s.Independence.Defined {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
-			trimFloat(s.Independence.Median, 3), pct(s.Independence.NearShare), NearCells)
+			trimFloat(s.Independence.Median, 3), pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
 	}
 	out += nullSentences(r)
 	return strings.TrimSpace(out)
@@ -639,7 +639,7 @@ func reviewerText(r *Results) string {
 		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
 	}
 	if s.Independence.Warn {
-		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
+		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
 	}
 	return b.String()
 }

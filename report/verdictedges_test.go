@@ -327,3 +327,22 @@ func TestPctFineShortOfWhole(t *testing.T) {
 		}
 	}
 }
+
+// TestHeadlineNearShareAsTheSentence: the headline printed the share of
+// test points near a training point as a whole percentage, "100%" for
+// 399 of 400 (and "25%" for a share just above the 25% it warns above),
+// where the independence sentence says 99.8% (and 25.1%).
+func TestHeadlineNearShareAsTheSentence(t *testing.T) {
+	r := loadSample(t)
+	s := analyzed(t, r)
+	for _, c := range []struct {
+		share float64
+		want  string
+	}{{0.9975, "99.8% of test points lie within"}, {0.2505, "25.1% of test points lie within"}} {
+		s.Independence.NearShare, s.Independence.Warn = c.share, true
+		checkWords(t, "headline", headline(newAnalysis(r), s), []string{c.want}, []string{"100% of test points", " 25% of test points"})
+		// The methods text and the reply to a reviewer say the same.
+		pc := strings.TrimSuffix(c.want, " of test points lie within")
+		checkWords(t, "methods", methodsText(r), []string{"; " + pc + " lay within 3 cell widths.", "We also note that " + pc + " of the test records lie within 3 cells"}, []string{"; 100% lay", "that 100% of", "; 25% lay", "that 25% of"})
+	}
+}
