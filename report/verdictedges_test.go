@@ -346,3 +346,25 @@ func TestHeadlineNearShareAsTheSentence(t *testing.T) {
 		checkWords(t, "methods", methodsText(r), []string{"; " + pc + " lay within 3 cell widths.", "We also note that " + pc + " of the test records lie within 3 cells"}, []string{"; 100% lay", "that 100% of", "; 25% lay", "that 25% of"})
 	}
 }
+
+// TestOneResampleWords: with --iterations 1 (its minimum) the methods text
+// and the page said "the published bootstrap of 1 resamples", "from 1
+// full-size resamples" and "1 bootstrap draws" (hD's degenerate-data
+// hunt).
+func TestOneResampleWords(t *testing.T) {
+	r := loadSample(t)
+	r.Settings.Iterations, r.Settings.PairedResamples = 1, 1
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			r.Scores[i].PartialROC[j].Iterations = 1
+		}
+	}
+	analyzed(t, r)
+	bad := []string{"1 resamples", "1 full-size resamples", "1 bootstrap draws"}
+	checkWords(t, "methods", methodsText(r), []string{"of 1 resample of 50%", "from 1 full-size resample of the test records"}, bad)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"Other metrics: 1 full-size resample of the test points", "Resamples: 1 bootstrap draw of"}, bad)
+}
