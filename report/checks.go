@@ -5,6 +5,7 @@ import (
 	"math"
 	"sort"
 	"strconv"
+	"strings"
 
 	"areasweep/extent/vocab"
 	"areasweep/metrics"
@@ -106,13 +107,20 @@ func (a *analysis) truncationSentence(t *TruncationCheck) string {
 }
 
 // pctFine formats a share as a percentage with enough digits to tell a
-// small share from zero (0.003%, 0.41%, 12%).
+// small share from zero (0.003%, 0.41%, 12%), and a share short of the
+// whole from it (99.9%, not the 100% of a constant model).
 func pctFine(v float64) string {
 	switch {
 	case v == 0:
 		return "0%"
 	case v < 0.01:
 		return trimFloat(100*v, 1) + "%"
+	case v < 1 && pct(v) == "100%":
+		for dec := 1; dec <= 16; dec++ {
+			if s := strconv.FormatFloat(100*v, 'f', dec, 64); !strings.HasPrefix(s, "100") {
+				return s + "%"
+			}
+		}
 	}
 	return pct(v)
 }

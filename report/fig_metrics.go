@@ -475,10 +475,38 @@ func fewResampleWords(st Settings) string {
 	return fmt.Sprintf("where a resample draws fewer than %d test records (an extent with fewer than %d at %s%%)", MinPairedPoints, minBootstrapPoints(st.ResampleFraction), fmtG(100*st.ResampleFraction))
 }
 
+// scoredModels returns the set of models and nulls scored on at least
+// one extent, and the labels of the others (a constant raster), models
+// in ModelNames order, then nulls.
+func scoredModels(r *Results) (map[string]bool, []string) {
+	scored := map[string]bool{}
+	for _, sc := range r.Scores {
+		if sc.Scored {
+			scored[sc.Model] = true
+		}
+	}
+	var unscored []string
+	if r.Sensitivity != nil {
+		for _, model := range r.Sensitivity.ModelNames {
+			if !scored[model] {
+				unscored = append(unscored, model)
+			}
+		}
+	}
+	for _, nm := range nulls(r) {
+		if !scored[nm.Name] {
+			unscored = append(unscored, ModelLabel(r, nm.Name))
+		}
+	}
+	return scored, unscored
+}
+
 // undrawnSentence names, per metric, the models and nulls with no marker
 // in its panel (the score undefined on every extent scored: a model of two
 // values has no Boyce index), and the metrics with no panel at all, so
-// that a line missing from a panel is not read as hidden behind another.
+// that a line missing from a panel is not read as hidden behind another;
+// a model or null scored on no extent (a constant raster) is named once,
+// as not scored.
 func undrawnSentence(r *Results) string {
 	s := r.Sensitivity
 	if s == nil {
@@ -493,6 +521,9 @@ func undrawnSentence(r *Results) string {
 	for _, pn := range l.left {
 		noRoom[pn.m.Key] = true
 	}
+	// A model or null scored on no extent (a constant raster) has no
+	// score to be undefined: named once, as not scored.
+	scored, unscored := scoredModels(r)
 	var parts, none []string
 	for _, m := range s.Metrics {
 		pn, ok := drawn[m.Key]
@@ -505,12 +536,12 @@ func undrawnSentence(r *Results) string {
 		}
 		var names []string
 		for i, model := range s.ModelNames {
-			if len(pn.pts[i]) == 0 {
+			if len(pn.pts[i]) == 0 && scored[model] {
 				names = append(names, model)
 			}
 		}
 		for j, nm := range nulls(r) {
-			if len(pn.nulls[j]) == 0 {
+			if len(pn.nulls[j]) == 0 && scored[nm.Name] {
 				names = append(names, ModelLabel(r, nm.Name))
 			}
 		}
@@ -519,10 +550,13 @@ func undrawnSentence(r *Results) string {
 		}
 	}
 	out := ""
+	if len(unscored) > 0 {
+		out += " Not scored on any extent (the Scores table says why), so not drawn: " + joinList(unscored) + "."
+	}
 	if len(parts) > 0 {
 		out += " Undefined on every extent, so not drawn: " + strings.Join(parts, "; ") + "."
 	}
-	if len(none) > 0 {
+	if len(none) > 0 && len(scored) > 0 {
 		out += " No panel (undefined for every model on every extent): " + joinList(none) + "."
 	}
 	if len(l.left) > 0 {
@@ -572,11 +606,19 @@ func metricsCaption(r *Results) string {
 	}
 	if st.Iterations >= 1 {
 		bar := ""
-		if st.Iterations >= 2 {
+		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
+		case st.Iterations < 2:
+		case st.Iterations < MinPercentileResamples:
+			// No extent has a bar (BootstrapReadable).
+			bar = fmt.Sprintf(", with no bar: fewer than %d resamples place no 2.5th or 97.5th percentile inside the resampled values (our cut-off)", MinPercentileResamples)
+		case fewPts && fewB:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar %s or where fewer than %d resamples formed a ratio, our cut-offs)", fewResampleWords(st), MinPercentileResamples)
+		case fewPts:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar %s, our cut-off)", fewResampleWords(st))
+		case fewB:
+			bar = fmt.Sprintf(" and the bar spans their 2.5th to 97.5th percentiles (no bar where fewer than %d resamples formed a ratio, our cut-off)", MinPercentileResamples)
+		default:
 			bar = " and the bar spans their 2.5th to 97.5th percentiles"
-			if fewResamplePoints(r) {
-				bar += fmt.Sprintf(" (no bar %s, our cut-off)", fewResampleWords(st))
-			}
 		}
 		c += fmt.Sprintf("Partial ROC: the point is the mean ratio of the %d resample%s of %s%% of the test records (%s)%s; "+
 			"the full-sample ratio is in the tables. ",

@@ -192,6 +192,11 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 	if len(nulls(r)) > 0 {
 		c += " A null's panel is shaded light grey: a reference, not a model."
 	}
+	if _, un := scoredModels(r); len(un) == 1 {
+		c += " Not scored on any extent (the Scores table says why), so its panel is empty: " + un[0] + "."
+	} else if len(un) > 1 {
+		c += " Not scored on any extent (the Scores table says why), so their panels are empty: " + joinList(un) + "."
+	}
 	if thinned {
 		c += fmt.Sprintf(" With %d extents, more than the %d a panel keeps readable, each panel draws %d: the base region, the whole raster, "+
 			"and the smallest, middle and largest of each nested chain and of the extents in no chain (ticks on the colour bar); "+

@@ -162,3 +162,87 @@ func TestROCNoBarWithoutRamp(t *testing.T) {
 		t.Errorf("caption of a full family lacks the colour bar: %s", f.Caption)
 	}
 }
+
+// TestMetricsCaptionNamesUnscored: a constant model is scored on no
+// extent, and the metrics figure's caption called each of its scores
+// "Undefined on every extent" (hD's degenerate-data hunt: a constant
+// model beside the distance-only null); with no model or null scored at
+// all it said "No panel (undefined for every model on every extent)". A
+// model scored nowhere has no score to be undefined: the caption says it
+// was not scored.
+func TestMetricsCaptionNamesUnscored(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
+	analyzed(t, r)
+	got := undrawnSentence(r)
+	checkWords(t, "one model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: broad."}, []string{"of broad", "Undefined"})
+	for i := range r.Scores {
+		r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+	}
+	r.Paired, r.Rings = nil, nil
+	analyzed(t, r)
+	got = undrawnSentence(r)
+	checkWords(t, "every model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: good, truncated and broad."}, []string{"Undefined", "No panel"})
+}
+
+// TestROCCaptionNamesUnscored: the ROC figure draws a panel for every
+// model and null; a constant model's panel is empty (no extent scored it:
+// hD's degenerate-data hunt), and the caption said nothing of it, so an
+// empty panel read as curves lost in drawing. The caption names it.
+func TestROCCaptionNamesUnscored(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
+	analyzed(t, r)
+	es := r.Extents
+	checkWords(t, "one model constant", rocCaption(r, es, len(es), false, 0.05),
+		[]string{"Not scored on any extent (the Scores table says why), so its panel is empty: broad."}, []string{"good.", "truncated."})
+	r = loadSample(t)
+	analyzed(t, r)
+	checkWords(t, "sample", rocCaption(r, es, len(es), false, 0.05), nil, []string{"Not scored on any extent"})
+}
+
+// TestMetricsCaptionFewFormedResamples: with --iterations 2 to 39 (or an
+// extent where fewer than 40 resamples of the published bootstrap formed a
+// ratio) the figure draws no partial ROC bar there (BootstrapReadable),
+// yet the caption said "the bar spans their 2.5th to 97.5th percentiles"
+// without a word of it (hD's degenerate-data hunt: --iterations 2
+// --fraction 1, no bar on any extent); the methods text said so already.
+func TestMetricsCaptionFewFormedResamples(t *testing.T) {
+	const spans = "the bar spans their 2.5th to 97.5th percentiles"
+	r := loadSample(t)
+	r.Settings.Iterations = 20
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			pr := &r.Scores[i].PartialROC[j]
+			pr.Iterations, pr.NotFormed, pr.ResampleSize = 20, 0, MinPairedPoints
+		}
+	}
+	analyzed(t, r)
+	checkWords(t, "20 resamples", metricsCaption(r),
+		[]string{"Partial ROC: the point is the mean ratio of the 20 resamples", "(the published bootstrap), with no bar: fewer than 40 resamples place no 2.5th or 97.5th percentile inside the resampled values (our cut-off); the full-sample"},
+		[]string{spans})
+	r = loadSample(t)
+	r.Settings.Iterations = 200
+	n := 0
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			pr := &r.Scores[i].PartialROC[j]
+			pr.Iterations, pr.NotFormed, pr.ResampleSize = 200, 0, MinPairedPoints
+			if r.Scores[i].Scored && n == 0 {
+				pr.NotFormed = 170 // 30 formed
+				n++
+			}
+		}
+	}
+	analyzed(t, r)
+	checkWords(t, "30 formed on one extent", metricsCaption(r),
+		[]string{spans + " (no bar where fewer than 40 resamples formed a ratio, our cut-off)"}, nil)
+}

@@ -239,7 +239,7 @@ func headline(a *analysis, s *Sensitivity) string {
 		// Optimistic rather than "inflated" (a lower omission is the
 		// optimistic side), and only where test points enter: the
 		// predicted area does not use them.
-		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score computed from the test points is likely optimistic.", pct(s.Independence.NearShare), NearCells)
+		fmt.Fprintf(&b, " %s of test points lie within %g cells of a training point, so every score computed from the test points is likely optimistic.", pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
 	}
 	return b.String()
 }

@@ -73,7 +73,11 @@ func analysisSection(r *Results) analysisView {
 		label[m.Key] = m.Label
 	}
 	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinResampledPoints: MinResampledPoints, MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
-	if s.BaseExtent != vocab.BaseID {
+	if s.BaseExtent == "" {
+		// No extent scored: the differences would be taken from the
+		// base extent, and none stands in for it.
+		v.BaseExtent = vocab.BaseID
+	} else if s.BaseExtent != vocab.BaseID {
 		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
 		if v.StandIn == "" {
 			v.StandIn = ", the first scored extent"

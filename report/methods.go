@@ -149,8 +149,8 @@ func methodsScores(b *strings.Builder, r *Results) {
 	st := r.Settings
 	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resamples of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
-			fmtList(st.E, ""), bootstrapName(st), st.Iterations, fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resample%s of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
+			fmtList(st.E, ""), bootstrapName(st), st.Iterations, Plural(st.Iterations), fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
 		case fewPts && fewB:
 			fmt.Fprintf(b, "; neither is given %s or where fewer than %d resamples formed a ratio, our cut-offs", fewResampleWords(st), MinPercentileResamples)
@@ -205,7 +205,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 	s, st := r.Sensitivity, r.Settings
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resamples of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples)
+	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resample%s of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples, Plural(st.PairedResamples))
 	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
@@ -349,8 +349,10 @@ func fewerList(s *Sensitivity, fewer []string, someHoldAll bool) string {
 // stands in for it (BaseExtent), that extent named as the reference with
 // the reason the base extent was left out.
 func referenceText(s *Sensitivity, format string) string {
-	if s.BaseExtent == vocab.BaseID {
-		return fmt.Sprintf(format, s.BaseExtent)
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
+		// No extent scored (BaseExtent ""): none stands in, and the
+		// differences would be taken from the base extent.
+		return fmt.Sprintf(format, vocab.BaseID)
 	}
 	why := ""
 	for _, e := range s.SkippedExtents {
@@ -365,7 +367,7 @@ func referenceText(s *Sensitivity, format string) string {
 // its name already ("the base extent, base," read as two extents): "the
 // base extent", or the extent standing in for it, with why.
 func referenceName(s *Sensitivity) string {
-	if s.BaseExtent == vocab.BaseID {
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
 		return "the base extent"
 	}
 	return referenceText(s, "%s")
@@ -374,7 +376,7 @@ func referenceName(s *Sensitivity) string {
 // referenceWord is "the base extent", or "the reference extent" when
 // another extent stands in for it (referenceText).
 func referenceWord(s *Sensitivity) string {
-	if s.BaseExtent == vocab.BaseID {
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
 		return "the base extent"
 	}
 	return "the reference extent"
@@ -500,7 +502,7 @@ func resultNumbers(r *Results) string {
 	}
 	if s.Independence.Defined {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
-			trimFloat(s.Independence.Median, 3), pct(s.Independence.NearShare), NearCells)
+			trimFloat(s.Independence.Median, 3), pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
 	}
 	out += nullSentences(r)
 	return strings.TrimSpace(out)
@@ -637,7 +639,7 @@ func reviewerText(r *Results) string {
 		b.WriteString("We therefore report every score together with the extent it was computed on and treat the values as evaluation aids rather than as absolute measures of model quality.")
 	}
 	if s.Independence.Warn {
-		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pct(s.Independence.NearShare), NearCells)
+		fmt.Fprintf(&b, " We also note that %s of the test records lie within %g cells of a training record, so every score computed from the test records is likely optimistic.", pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
 	}
 	return b.String()
 }

@@ -257,8 +257,10 @@ type Extent struct {
 // than the extent's background does: distance alone separates them. It is a
 // description of the data, not a test.
 type SortingBias struct {
-	// Defined is false when the extent holds no test point or no area;
-	// Reason then says which, and the numbers are 0.
+	// Defined is false when the extent holds no test point or no area, or
+	// when half its area or more lies within 1 m of a training point (the
+	// cells' median cannot be told from 0); Reason then says which, and
+	// the numbers are 0.
 	Defined bool   `json:"defined"`
 	Reason  string `json:"reason,omitempty"`
 	// TestPoints is the number of test points inside the extent.

@@ -136,12 +136,26 @@ func baseWord(base string) string {
 	return "the base extent"
 }
 
+// scoredSomewhere tells whether model is scored on at least one extent.
+func (a *analysis) scoredSomewhere(model string) bool {
+	for _, e := range a.r.Extents {
+		if a.score(model, e.ID) != nil {
+			return true
+		}
+	}
+	return false
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 	mv := ModelVerdict{Metric: m.Key, Label: m.Label, Model: model, Tolerance: m.Tolerance, Base: a.base, Verdict: JudgementUndetermined,
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
+	if bs == nil && !a.scoredSomewhere(model) {
+		mv.Sentence = fmt.Sprintf("%s of %s: not scored on any extent, so no difference can be formed.", upperFirst(m.Label), model)
+		return mv
+	}
 	if bs == nil {
 		mv.Sentence = fmt.Sprintf("%s of %s: not scored on %s %s, so no difference from it can be formed.", upperFirst(m.Label), model, baseWord(a.base), a.base)
 		return mv
@@ -535,7 +549,7 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
 	}
 	from := "the base extent"
-	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID {
+	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID && mvs[0].Base != "" {
 		// The first scored extent stands in for a base extent that could
 		// not be scored: name it, not "the base extent".
 		from = "the reference extent " + mvs[0].Base

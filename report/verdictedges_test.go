@@ -236,3 +236,135 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 		t.Error("no Boyce row of the differences table says its intervals are not calibrated")
 	}
 }
+
+// TestNoExtentScoredReferenceWords: where no model could be scored on any
+// extent (a constant model alone, with the distance-only null scored:
+// hD's degenerate-data hunt), there is no reference extent, and the
+// sentences that name it printed an empty id: "not scored on the
+// reference extent , so no difference", "minus the score on , in place of
+// the base extent base" (the page), "difference from the reference
+// extent , in place of the base extent base (left out: no model could be
+// scored) lies within" (methods.md).
+func TestNoExtentScoredReferenceWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+	}
+	r.Paired, r.Rings = nil, nil
+	s := analyzed(t, r)
+	if s.BaseExtent != "" {
+		t.Fatalf("base extent %q, want none", s.BaseExtent)
+	}
+	bad := []string{" , ", " ,", "on , ", "reference extent", "in place of the base extent"}
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil {
+		t.Fatal("no AUC verdict of good")
+	}
+	checkWords(t, "verdict", mv.Sentence, []string{"AUC of good: not scored on any extent, so no difference can be formed."}, bad)
+	checkWords(t, "methods", methodsText(r), []string{"every 95% interval of its difference from the base extent (base) lies within"}, bad)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on base, on the test points"}, bad)
+}
+
+// TestModelScoredNowhereVerdictWords: a model scored on no extent (a
+// constant raster, or no data at any test point: hD's degenerate-data
+// hunt) beside one scored everywhere; its verdicts said "not scored on the
+// base extent base", true but read as if it were scored elsewhere.
+func TestModelScoredNowhereVerdictWords(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "broad")
+	if mv == nil {
+		t.Fatal("no AUC verdict of broad")
+	}
+	checkWords(t, "scored nowhere", mv.Sentence, []string{"AUC of broad: not scored on any extent, so no difference can be formed."}, []string{"base extent"})
+	// Scored somewhere but not on base: the sentence names the base extent.
+	r = loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Model == "truncated" && r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has no data on 6% of the extent's cells"
+		}
+	}
+	s = analyzed(t, r)
+	mv = s.findModelVerdict("auc", "truncated")
+	checkWords(t, "not on base", mv.Sentence, []string{"AUC of truncated: not scored on the base extent base, so no difference from it can be formed."}, []string{"any extent"})
+}
+
+// TestPctFineShortOfWhole: a model whose minimum covers 99.87% of the
+// valid area (two cells of 1,600 hold other values: hD's degenerate-data
+// hunt) was said to cover "100% of the valid area", the words of a
+// constant model. Expected strings: the shares' percentages written out
+// (99.875%, 99.99%, 99.5%).
+func TestPctFineShortOfWhole(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{1, "100%"}, {0.99875, "99.9%"}, {0.9999, "99.99%"}, {0.995, "99.5%"}, {0.994, "99%"}, {0.5, "50%"}, {0.004, "0.4%"}, {0, "0%"},
+	} {
+		if got := pctFine(c.v); got != c.want {
+			t.Errorf("pctFine(%v) = %q, want %q", c.v, got, c.want)
+		}
+	}
+	r := loadSample(t)
+	for i := range r.Models {
+		if r.Models[i].Name == "truncated" {
+			r.Models[i].FloorShare = 0.99875
+		}
+	}
+	s := analyzed(t, r)
+	for _, tc := range s.Truncation {
+		if tc.Model == "truncated" {
+			checkWords(t, "truncation", tc.Sentence, []string{"its minimum value covers 99.9% of the valid area"}, []string{"100%", "constant"})
+		}
+	}
+}
+
+// TestHeadlineNearShareAsTheSentence: the headline printed the share of
+// test points near a training point as a whole percentage, "100%" for
+// 399 of 400 (and "25%" for a share just above the 25% it warns above),
+// where the independence sentence says 99.8% (and 25.1%).
+func TestHeadlineNearShareAsTheSentence(t *testing.T) {
+	r := loadSample(t)
+	s := analyzed(t, r)
+	for _, c := range []struct {
+		share float64
+		want  string
+	}{{0.9975, "99.8% of test points lie within"}, {0.2505, "25.1% of test points lie within"}} {
+		s.Independence.NearShare, s.Independence.Warn = c.share, true
+		checkWords(t, "headline", headline(newAnalysis(r), s), []string{c.want}, []string{"100% of test points", " 25% of test points"})
+		// The methods text and the reply to a reviewer say the same.
+		pc := strings.TrimSuffix(c.want, " of test points lie within")
+		checkWords(t, "methods", methodsText(r), []string{"; " + pc + " lay within 3 cell widths.", "We also note that " + pc + " of the test records lie within 3 cells"}, []string{"; 100% lay", "that 100% of", "; 25% lay", "that 25% of"})
+	}
+}
+
+// TestOneResampleWords: with --iterations 1 (its minimum) the methods text
+// and the page said "the published bootstrap of 1 resamples", "from 1
+// full-size resamples" and "1 bootstrap draws" (hD's degenerate-data
+// hunt).
+func TestOneResampleWords(t *testing.T) {
+	r := loadSample(t)
+	r.Settings.Iterations, r.Settings.PairedResamples = 1, 1
+	for i := range r.Scores {
+		for j := range r.Scores[i].PartialROC {
+			r.Scores[i].PartialROC[j].Iterations = 1
+		}
+	}
+	analyzed(t, r)
+	bad := []string{"1 resamples", "1 full-size resamples", "1 bootstrap draws"}
+	checkWords(t, "methods", methodsText(r), []string{"of 1 resample of 50%", "from 1 full-size resample of the test records"}, bad)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"Other metrics: 1 full-size resample of the test points", "Resamples: 1 bootstrap draw of"}, bad)
+}

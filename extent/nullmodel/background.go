@@ -870,11 +870,14 @@ type SortingBias struct {
 	// BackgroundMeanM and BackgroundMedianM summarise d_c (m), area-weighted
 	// (see Background.Mean and Background.Median).
 	BackgroundMeanM, BackgroundMedianM float64
-	// RatioMean and RatioMedian are the ratios; each is 0 when its
-	// denominator is 0.
+	// RatioMean and RatioMedian are the ratios; both are 0 when the
+	// record is undefined.
 	RatioMean, RatioMedian float64
-	// Defined is false when there is no test point or no background area;
-	// Reason then says which.
+	// Defined is false when there is no test point or no background area,
+	// or when half the extent's area or more lies within 1 m of a training
+	// point (the histogram's first bin, [0, 1 m): the median then cannot
+	// be told from 0, and a ratio over it would be a ratio over the bin's
+	// interpolation); Reason then says which.
 	Defined bool
 	Reason  string
 }
@@ -905,11 +908,18 @@ func (b *Background) SortingBias(k int, test []float64) SortingBias {
 		sb.TestMedianM = (s[n/2-1] + s[n/2]) / 2
 	}
 	sb.BackgroundMeanM, sb.BackgroundMedianM = b.Mean(k), b.Median(k)
-	if sb.BackgroundMeanM > 0 {
-		sb.RatioMean = sb.TestMeanM / sb.BackgroundMeanM
+	if e := b.get(k); len(e.hist) > 0 && 2*e.hist[0] >= e.area {
+		// Half the area or more within 1 m of a training point (cells
+		// centred on the training points of a tiny extent): the median's
+		// bin is [0, 1 m), and a test median over it read as a ratio of
+		// thousands (or 0 over 0 when every cell lies on a point).
+		return SortingBias{TestN: len(test), Reason: ReasonAtTraining}
 	}
-	if sb.BackgroundMedianM > 0 {
-		sb.RatioMedian = sb.TestMedianM / sb.BackgroundMedianM
-	}
+	sb.RatioMean = sb.TestMeanM / sb.BackgroundMeanM
+	sb.RatioMedian = sb.TestMedianM / sb.BackgroundMedianM
 	return sb
 }
+
+// ReasonAtTraining is SortingBias.Reason for an extent whose cells lie at
+// the training points for half its area or more.
+const ReasonAtTraining = "half the extent's area or more lies within 1 m of a training point, so the background's median distance cannot be told from 0"

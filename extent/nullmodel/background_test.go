@@ -584,3 +584,53 @@ func BenchmarkTallyRuns(b *testing.B) {
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(w*rows), "ns/cell")
 	})
 }
+
+// TestSortingBiasCellsAtTraining: an extent half of whose area or more
+// lies at the training points (points at cell centres, an extent of a few
+// cells: hD's degenerate-data hunt, a 2 x 2 grid) has a background median
+// in the histogram's first bin, [0, 1 m), read by interpolation as 0.5 or
+// 1 m: the ratio of medians came out as 72436 (test median 72.4 km over
+// 1 m), and an extent whose every cell lies on a training point gave
+// ratios 0 (0 over 0) marked defined, which the methods text then quoted
+// as the low end of the range. Such an extent's sorting bias is undefined,
+// with its reason. The distances are those of that run (72436 m and
+// 73901 m from the cells off the training points, cell areas of two rows
+// in the ratio of its grid); the areas at 0 m are set to exactly half,
+// more than half and all of the extent's.
+func TestSortingBiasCellsAtTraining(t *testing.T) {
+	cases := []struct {
+		name    string
+		dist    []float64
+		wts     []int64
+		defined bool
+	}{
+		{"half the area on training points", []float64{0, 72436, 0, 73901}, []int64{8100, 8100, 8174, 8174}, false},
+		{"three quarters on training points", []float64{0, 0, 0, 73901}, []int64{8100, 8100, 8174, 8174}, false},
+		{"every cell on a training point", []float64{0, 0}, []int64{8100, 8174}, false},
+		{"under 1 m is not 0", []float64{0.4, 0.9, 0.2, 73901}, []int64{8100, 8100, 8174, 8174}, false},
+		{"less than half on training points", []float64{0, 72436, 73901}, []int64{8100, 8100, 8174}, true},
+	}
+	test := []float64{0, 72436, 73901}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var b Background
+			b.Add(0, c.dist, c.wts)
+			sb := b.SortingBias(0, test)
+			if sb.Defined != c.defined {
+				t.Fatalf("defined %v, want %v: %+v", sb.Defined, c.defined, sb)
+			}
+			if !c.defined {
+				if want := (SortingBias{TestN: len(test), Reason: ReasonAtTraining}); sb != want {
+					t.Errorf("%+v, want %+v (the numbers 0, as for the other undefined records)", sb, want)
+				}
+				return
+			}
+			// Less than half at 0 m: the weighted median is the cell at
+			// 72436 m (cumulative area 16200 of 24374 reaches half there),
+			// read within one bin (0.1%).
+			if math.Abs(sb.BackgroundMedianM-72436) > 72436*1e-3 || sb.RatioMedian <= 0 || sb.RatioMean <= 0 {
+				t.Errorf("%+v, want a median near 72436 m and positive ratios", sb)
+			}
+		})
+	}
+}

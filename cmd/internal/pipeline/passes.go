@@ -36,6 +36,11 @@ func (s *Study) Passes() []report.Model {
 	return ps
 }
 
+// minBoyceSpan is the narrowest value range across which the Boyce
+// index's histogram (histBins bins) lays its (histBins-1)/2 bins: they are
+// never narrower than 2^-1022 (the grid floor of package metrics).
+const minBoyceSpan = (histBins - 1) / 2 * 0x1p-1022
+
 // Pass runs pass i: its plan, its sums (one streaming pass over the
 // cells, or what SetSums gave), the clip of the family to the valid cells
 // after the first pass, and the scores.
@@ -59,6 +64,13 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 		// report's axes and colour bars are drawn over it.
 		return fault.BadInput(fmt.Errorf("%s: the values of %s run from %g to %g, whose difference is beyond the largest number a float64 holds; divide the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/1e300\") and give that file",
 			modelWho(p.Model), p.Model.Path, st.Min, st.Max, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
+	}
+	if st := sums.Stats; st.Area > 0 && st.Min < st.Max && st.Max-st.Min < minBoyceSpan {
+		// The Boyce index's histogram has no bin narrower than 2^-1022
+		// (metrics' grid floor): across a narrower range it has fewer
+		// bins than stated, and its window areas are read from them.
+		s.warn(fmt.Sprintf("%s: the values of %s run from %g to %g, within %.2g of each other, closer than the Boyce index's histogram resolves (its bins are never narrower than about 2.2e-308, so fewer than 2,047 lie across this range): that index is approximate, the other scores are not; multiply the values by a large number (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A*1e300\") and give that file",
+			modelWho(p.Model), p.Model.Path, st.Min, st.Max, st.Max-st.Min, shellArg(p.Model.Path), shellArg(strings.TrimSuffix(p.Model.Path, filepath.Ext(p.Model.Path))+"_scaled.tif")))
 	}
 	if st := sums.Stats; st.Area > 0 && st.Min == st.Max {
 		s.warn(fmt.Sprintf("%s has the same value (%g) on every cell with data inside the extents; it ranks nothing, so it is not scored on any extent (every cell ties with every test point): check that this is the file you meant", modelWho(p.Model), st.Min))
