@@ -100,7 +100,7 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 	whole := make([]float64, nb)
 	for k := range nb {
 		if ar := spread[k]; ar != 0 && e1[k] > e0[k] {
-			whole[k] = float64(ar) * (e1[k] - e0[k]) / (e1[k] - e0[k])
+			whole[k] = spreadArea(float64(ar), e1[k]-e0[k], e1[k]-e0[k])
 		}
 	}
 
@@ -122,7 +122,7 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 				}
 				ov := math.Min(e1[k], hi) - math.Max(e0[k], lo)
 				if ov > 0 {
-					s += float64(ar) * ov / (e1[k] - e0[k])
+					s += spreadArea(float64(ar), ov, e1[k]-e0[k])
 				}
 			} else if e0[k] >= lo && e0[k] <= hi {
 				s += float64(ar)
@@ -226,4 +226,16 @@ func boyceIndex(ratio, mid []float64) (float64, bool, string) {
 		return 0, false, ReasonBoyceFlat
 	}
 	return rho, true, ""
+}
+
+// spreadArea is the part of a bin's area ar (its width w) on an overlap
+// of width ov, ar * ov / w, computed as ar * (ov / w) where ar * ov
+// overflows (a model whose values reach about 1e295: area units times a
+// bin's width pass the largest float64, and a window's share became +Inf),
+// so that every other case keeps its bits.
+func spreadArea(ar, ov, w float64) float64 {
+	if x := ar * ov; !math.IsInf(x, 0) {
+		return x / w
+	}
+	return ar * (ov / w)
 }
