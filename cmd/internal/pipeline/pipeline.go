@@ -68,7 +68,15 @@ func (s *Study) checkOut() error {
 	if s.dir != nil {
 		return nil
 	}
-	return outdir.Check(s.o.Out, s.o.Force, s.outInputs(), s.o.Shard)
+	// The sidecars the checksums will find, listed now (no hashing), so
+	// that one inside --out is named as the input there.
+	var sidecars []string
+	for _, in := range s.inputFiles() {
+		if in.kind >= 0 {
+			sidecars = append(sidecars, sidecarFiles(in.path, in.kind)...)
+		}
+	}
+	return outdir.Check(s.o.Out, s.o.Force, append(s.outInputs(), sidecars...), s.o.Shard)
 }
 
 // outInputs are the files --out may not hold or be: the inputs, the study

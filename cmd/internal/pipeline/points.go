@@ -886,27 +886,7 @@ func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 // 6.4 GB); the records and the first error reported follow that order
 // whatever finishes first.
 func (s *Study) checksums() error {
-	o := s.o
-	type input struct {
-		role, path string
-		kind       int // inputs.RasterSidecars, VectorSidecars, or -1 for none
-	}
-	var ins []input
-	for _, m := range s.models {
-		role := "model:" + m.Name
-		if m.Null {
-			role = "null:" + m.Name
-		}
-		ins = append(ins, input{role, m.Path, inputs.RasterSidecars})
-	}
-	ins = append(ins, input{"occurrences", o.Occurrences, -1}, input{"region", o.Region, inputs.VectorSidecars})
-	if o.Ecoregions != "" {
-		ins = append(ins, input{"ecoregions", o.Ecoregions, inputs.VectorSidecars})
-	}
-	for _, m := range o.Extra {
-		name, path, _ := inputs.ParseNamedPath(m)
-		ins = append(ins, input{"extra:" + name, path, inputs.VectorSidecars})
-	}
+	ins := s.inputFiles()
 	recs := make([]report.Input, len(ins))
 	files := make([][]InputFile, len(ins))
 	errs := make([]error, len(ins))
@@ -976,6 +956,38 @@ func (s *Study) checksums() error {
 		s.io.Inputs(all)
 	}
 	return nil
+}
+
+// inputFile is an input file of the run, its role ("model:NAME",
+// "occurrences", ...) and the kind of sidecars it may have
+// (inputs.RasterSidecars, VectorSidecars, or -1 for none).
+type inputFile struct {
+	role, path string
+	kind       int
+}
+
+// inputFiles lists the run's input files in the order they are recorded:
+// the models and nulls, the occurrences, the region, the ecoregions, the
+// extra layers.
+func (s *Study) inputFiles() []inputFile {
+	o := s.o
+	var ins []inputFile
+	for _, m := range s.models {
+		role := "model:" + m.Name
+		if m.Null {
+			role = "null:" + m.Name
+		}
+		ins = append(ins, inputFile{role, m.Path, inputs.RasterSidecars})
+	}
+	ins = append(ins, inputFile{"occurrences", o.Occurrences, -1}, inputFile{"region", o.Region, inputs.VectorSidecars})
+	if o.Ecoregions != "" {
+		ins = append(ins, inputFile{"ecoregions", o.Ecoregions, inputs.VectorSidecars})
+	}
+	for _, m := range o.Extra {
+		name, path, _ := inputs.ParseNamedPath(m)
+		ins = append(ins, inputFile{"extra:" + name, path, inputs.VectorSidecars})
+	}
+	return ins
 }
 
 // sidecarFiles are the files read with the input at path other than
