@@ -37,7 +37,7 @@ const (
 
 const exitCodesHelp = `Exit codes:
   0    success
-  1    the run failed for an outside reason (disk full, a file changed or removed during the run)
+  1    the run failed for an outside reason (disk full, out of memory, a file changed or removed during the run)
   2    bad input or settings; nothing was written
   3    internal error (a bug in areasweep); please report it
   128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP); partial results removed`
