@@ -22,6 +22,7 @@ import (
 	"areasweep/cmd/internal/stopsig"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
+	"areasweep/report"
 )
 
 // Exit codes, defined once; README "Exit codes" and the --help text of
@@ -95,6 +96,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		select {
 		case s := <-sigs:
 			fmt.Fprintf(errOut, "areasweep: %s\n", stoppedMessage(s))
+			report.EndTempWork() // no folder of the PDF writer's left in TMPDIR
 			os.Exit(128 + int(s.(syscall.Signal)))
 		case <-stop:
 		}
