@@ -92,11 +92,20 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	sigs := stopsig.Listen()
 	stop := make(chan struct{})
 	defer func() { stopsig.Stop(); close(stop) }()
+	terminal := isTerminal(errOut)
+	gate := &stopGate{w: errOut}
+	errOut = gate
 	go func() {
 		select {
 		case s := <-sigs:
-			fmt.Fprintf(errOut, "areasweep: %s\n", stoppedMessage(s))
+			msg := "areasweep: " + stoppedMessage(s) + "\n"
+			if terminal {
+				// A progress bar's line (and the terminal's echo of
+				// ^C) is cleared: the message starts its own line.
+				msg = "\r\x1b[K" + msg
+			}
 			report.EndTempWork() // no folder of the PDF writer's left in TMPDIR
+			gate.closeWith(msg)
 			os.Exit(128 + int(s.(syscall.Signal)))
 		case <-stop:
 		}
@@ -122,7 +131,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		}
 	}()
 
-	streams := &IO{In: in, Out: out, ErrOut: errOut, Terminal: isTerminal(errOut)}
+	streams := &IO{In: in, Out: out, ErrOut: errOut, Terminal: terminal}
 	root := newRootCmd(streams)
 	root.SetArgs(args)
 	root.SetOut(out)
@@ -161,6 +170,36 @@ func stoppedMessage(s os.Signal) string {
 		note = fmt.Sprintf("it had already moved its complete new outputs into %s, which holds them whole", out)
 	}
 	return fmt.Sprintf("stopped by %s; %s", signalName(s), note)
+}
+
+// stopGate is standard error as Main's commands write to it: once a stop
+// signal's message is written (closeWith), what the run's goroutines
+// still write before the process exits (a log line, a progress bar's
+// redraw) is dropped, so that the message is the last line (a line of
+// the pass, or a bar drawn over the message, used to follow it).
+type stopGate struct {
+	mu     sync.Mutex
+	w      io.Writer
+	closed bool
+}
+
+func (g *stopGate) Write(p []byte) (int, error) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if g.closed {
+		return len(p), nil
+	}
+	return g.w.Write(p)
+}
+
+// closeWith writes msg, the last thing written.
+func (g *stopGate) closeWith(msg string) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if !g.closed {
+		io.WriteString(g.w, msg)
+	}
+	g.closed = true
 }
 
 func signalName(s os.Signal) string {
