@@ -33,7 +33,7 @@ const (
 	exitBadInput = 2 // bad input or settings: nothing was written
 	exitInternal = 3 // a bug in areasweep (a recovered crash): please report
 	// A run stopped by a signal exits with 128 + the signal number
-	// (130 for SIGINT, 143 for SIGTERM, 129 for SIGHUP).
+	// (130 for SIGINT, 143 for SIGTERM, 129 for SIGHUP, 131 for SIGQUIT).
 )
 
 const exitCodesHelp = `Exit codes:
@@ -41,7 +41,7 @@ const exitCodesHelp = `Exit codes:
   1    the run failed for an outside reason (disk full, a file changed or removed during the run)
   2    bad input or settings; nothing was written
   3    internal error (a bug in areasweep); please report it
-  128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP); partial results removed`
+  128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP, 131 Ctrl-\); partial results removed`
 
 // version is the software version, set at build time with
 // -ldflags "-X main.version=...".
@@ -210,6 +210,8 @@ func signalName(s os.Signal) string {
 		return "SIGTERM"
 	case syscall.SIGHUP:
 		return "SIGHUP"
+	case syscall.SIGQUIT:
+		return "SIGQUIT (Ctrl-\\)"
 	}
 	return s.String()
 }
