@@ -235,6 +235,8 @@ func fontTempDirError(msg string) error {
 // run checks it before its work, which it otherwise lost at the end,
 // when the first PDF was drawn.
 func CheckTempDir() error {
+	tempWork.RLock()
+	defer tempWork.RUnlock()
 	d, err := os.MkdirTemp("", "areasweep-tmpcheck-")
 	if err != nil {
 		cause := err

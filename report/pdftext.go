@@ -1,6 +1,8 @@
 package report
 
 import (
+	"sync"
+
 	"golang.org/x/text/encoding/charmap"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/vg"
@@ -17,7 +19,26 @@ type pdfCanvas struct{ *vgpdf.Canvas }
 
 // FillString implements vg.Canvas.
 func (c pdfCanvas) FillString(f font.Face, pt vg.Point, s string) {
+	tempWork.RLock()
+	defer tempWork.RUnlock()
 	c.Canvas.FillString(f, pt, winAnsi(s))
+}
+
+// tempWork is held (read-locked) while the package may have a folder of
+// its own in the temporary directory: the PDF writer prepares each font
+// size's data in a folder gofpdf-makefont-… there the first time a
+// string of that size is drawn (in FillString), and removes it when
+// done; CheckTempDir makes and removes one. A stop signal's handler,
+// which ends the process with os.Exit (no deferred removal runs), calls
+// EndTempWork first, so that such a folder is not left behind (one was,
+// in the temporary folder, by a run of the demo stopped ~0.2 s in).
+var tempWork sync.RWMutex
+
+// EndTempWork waits until no folder of the package's is in the temporary
+// directory and keeps any from being made afterwards: the process is about
+// to exit. A string drawn in a PDF after it waits for ever.
+func EndTempWork() {
+	tempWork.Lock()
 }
 
 // winAnsi returns s in code page 1252 (WinAnsiEncoding, PDF 32000-1:2008,

@@ -30,5 +30,14 @@ func init() {
 		// without its end; then exit code 7.
 		fmt.Fprint(os.Stderr, "line one\nrunning late\npanic-free\n\rprogress 10%\rprogress 50%\rprogress 100%\nfatal errors: none\nno end")
 		os.Exit(7)
+	case "ownpanic":
+		// The program's own lines that start like a crash report (a
+		// model named "panic" logs "panic: ..."), then a refusal of its
+		// own: exit 2 ending with an "areasweep: " line.
+		fmt.Fprint(os.Stderr, "panic: AUC 0.81 on base\nruntime: 2.1 s\nareasweep: the study is refused\n")
+		os.Exit(2)
+	case "ownpanic0":
+		fmt.Fprint(os.Stderr, "panic: AUC 0.81 on base\nfatal error: none\n")
+		os.Exit(0)
 	}
 }

@@ -120,7 +120,9 @@ func TestAddressSpaceFloorHardLimit(t *testing.T) {
 // report is, which holds it; a goroutine's panic ends with exit 3 and
 // one line naming the report; neither report reaches standard error.
 // Lines that only begin like a report's first line are relayed unchanged
-// (carriage returns included) with the program's own exit code; and a
+// (carriage returns included) with the program's own exit code, and so
+// are lines starting exactly as a report does when the program then ends
+// as it does by itself (exit 0, or 2 after an "areasweep: " line); and a
 // stop signal sent to the supervisor reaches the program, which stops as
 // it does unsupervised (exit 143, its message).
 func TestSupervisedCrash(t *testing.T) {
@@ -167,6 +169,21 @@ func TestSupervisedCrash(t *testing.T) {
 	const relayed = "line one\nrunning late\npanic-free\n\rprogress 10%\rprogress 50%\rprogress 100%\nfatal errors: none\nno end"
 	if msg, code := run("relay"); msg != relayed || code != 7 {
 		t.Errorf("relay: exit %d, stderr %q; want exit 7 and %q", code, msg, relayed)
+	}
+	// The program's own lines that begin exactly like a report's first
+	// line (a model named "panic") are held, then relayed unchanged when
+	// the program ends as it does by itself: exit 0, or exit 2 with an
+	// "areasweep: " line last.
+	for mode, want := range map[string]struct {
+		text string
+		code int
+	}{
+		"ownpanic":  {"panic: AUC 0.81 on base\nruntime: 2.1 s\nareasweep: the study is refused\n", 2},
+		"ownpanic0": {"panic: AUC 0.81 on base\nfatal error: none\n", 0},
+	} {
+		if msg, code := run(mode); msg != want.text || code != want.code {
+			t.Errorf("%s: exit %d, stderr %q; want exit %d and %q", mode, code, msg, want.code, want.text)
+		}
 	}
 	// A stop signal to the supervisor: the program waits for its
 	// occurrences from a pipe nobody writes.

@@ -22,6 +22,7 @@ import (
 	"areasweep/cmd/internal/stopsig"
 	"areasweep/extent"
 	"areasweep/extent/gdalmsg"
+	"areasweep/report"
 )
 
 // Exit codes, defined once; README "Exit codes" and the --help text of
@@ -32,7 +33,7 @@ const (
 	exitBadInput = 2 // bad input or settings: nothing was written
 	exitInternal = 3 // a bug in areasweep (a recovered crash): please report
 	// A run stopped by a signal exits with 128 + the signal number
-	// (130 for SIGINT, 143 for SIGTERM, 129 for SIGHUP).
+	// (130 for SIGINT, 143 for SIGTERM, 129 for SIGHUP, 131 for SIGQUIT).
 )
 
 const exitCodesHelp = `Exit codes:
@@ -40,7 +41,7 @@ const exitCodesHelp = `Exit codes:
   1    the run failed for an outside reason (disk full, out of memory, a file changed or removed during the run)
   2    bad input or settings; nothing was written
   3    internal error (a bug in areasweep); please report it
-  128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP); partial results removed`
+  128+N  stopped by signal N (130 Ctrl-C, 143 SIGTERM, 129 SIGHUP, 131 Ctrl-\); partial results removed`
 
 // version is the software version, set at build time with
 // -ldflags "-X main.version=...".
@@ -91,10 +92,20 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 	sigs := stopsig.Listen()
 	stop := make(chan struct{})
 	defer func() { stopsig.Stop(); close(stop) }()
+	terminal := isTerminal(errOut)
+	gate := &stopGate{w: errOut}
+	errOut = gate
 	go func() {
 		select {
 		case s := <-sigs:
-			fmt.Fprintf(errOut, "areasweep: %s\n", stoppedMessage(s))
+			msg := "areasweep: " + stoppedMessage(s) + "\n"
+			if terminal {
+				// A progress bar's line (and the terminal's echo of
+				// ^C) is cleared: the message starts its own line.
+				msg = "\r\x1b[K" + msg
+			}
+			report.EndTempWork() // no folder of the PDF writer's left in TMPDIR
+			gate.closeWith(msg)
 			os.Exit(128 + int(s.(syscall.Signal)))
 		case <-stop:
 		}
@@ -120,7 +131,7 @@ func Main(args []string, in io.Reader, out, errOut io.Writer) (code int) {
 		}
 	}()
 
-	streams := &IO{In: in, Out: out, ErrOut: errOut, Terminal: isTerminal(errOut)}
+	streams := &IO{In: in, Out: out, ErrOut: errOut, Terminal: terminal}
 	root := newRootCmd(streams)
 	root.SetArgs(args)
 	root.SetOut(out)
@@ -161,6 +172,36 @@ func stoppedMessage(s os.Signal) string {
 	return fmt.Sprintf("stopped by %s; %s", signalName(s), note)
 }
 
+// stopGate is standard error as Main's commands write to it: once a stop
+// signal's message is written (closeWith), what the run's goroutines
+// still write before the process exits (a log line, a progress bar's
+// redraw) is dropped, so that the message is the last line (a line of
+// the pass, or a bar drawn over the message, used to follow it).
+type stopGate struct {
+	mu     sync.Mutex
+	w      io.Writer
+	closed bool
+}
+
+func (g *stopGate) Write(p []byte) (int, error) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if g.closed {
+		return len(p), nil
+	}
+	return g.w.Write(p)
+}
+
+// closeWith writes msg, the last thing written.
+func (g *stopGate) closeWith(msg string) {
+	g.mu.Lock()
+	defer g.mu.Unlock()
+	if !g.closed {
+		io.WriteString(g.w, msg)
+	}
+	g.closed = true
+}
+
 func signalName(s os.Signal) string {
 	switch s {
 	case syscall.SIGINT:
@@ -169,6 +210,8 @@ func signalName(s os.Signal) string {
 		return "SIGTERM"
 	case syscall.SIGHUP:
 		return "SIGHUP"
+	case syscall.SIGQUIT:
+		return "SIGQUIT (Ctrl-\\)"
 	}
 	return s.String()
 }

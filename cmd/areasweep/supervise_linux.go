@@ -151,6 +151,21 @@ static int areasweepMentions(const char *s) {
 	return 0;
 }
 
+// areasweepOwnEnd reports whether the kept text's last line is one of the
+// program's own messages ("areasweep: ..."), as a run refused (exit 2)
+// ends, and no crash report does.
+static int areasweepOwnEnd(void) {
+	size_t e = areasweepReportLen;
+	while (e > 0 && (areasweepReport[e - 1] == '\n' || areasweepReport[e - 1] == '\r')) {
+		e--;
+	}
+	size_t b = e;
+	while (b > 0 && areasweepReport[b - 1] != '\n' && areasweepReport[b - 1] != '\r') {
+		b--;
+	}
+	return e - b >= 11 && memcmp(areasweepReport + b, "areasweep: ", 11) == 0;
+}
+
 // areasweepSaveReport writes the kept report into a new folder
 // areasweep-crash-XXXXXX under TMPDIR (else /tmp), as run.log, and
 // returns its path, or NULL.
@@ -261,6 +276,15 @@ void areasweepSupervise(unsigned long long limit) {
 	if (areasweepLineLen > 0 && !areasweepCrashed) {
 		areasweepWriteAll(2, areasweepLine, areasweepLineLen);
 	}
+	if (areasweepCrashed && WIFEXITED(status) && (WEXITSTATUS(status) != 2 || areasweepOwnEnd())) {
+		// What began like a crash report was the program's own lines (a
+		// log line starting with a model named "panic" or "runtime"):
+		// it ended as it does by itself (a crash exits 2 or by a
+		// signal, and never with an "areasweep: " line), so they are
+		// relayed as they were written.
+		areasweepWriteAll(2, areasweepReport, areasweepReportLen);
+		areasweepCrashed = 0;
+	}
 	if (areasweepCrashed) {
 		char *where = areasweepSaveReport();
 		char msg[2048];
@@ -308,10 +332,14 @@ import "C"
 // (its code, or the same signal); killed outright, it takes the program
 // with it (SIGTERM, so that it removes what it was writing). A line that
 // starts a crash report (Go's "fatal error: ", "panic: ", "runtime: ", a
-// signal's name; the C++ or C library's) is not relayed: the report is
+// signal's name; the C++ or C library's) is held, not relayed: when the
+// program then ends as a crash does (exit 2, without an "areasweep: "
+// line at the end, or by a signal), the report is
 // kept in a new folder areasweep-crash-… under the temporary folder, and
 // one line says what happened, with exit code 1 when the report speaks of
-// memory (with the limit to ask for) and 3 otherwise (a bug). Standard
+// memory (with the limit to ask for) and 3 otherwise (a bug); otherwise
+// the held lines were the program's own (a model named "panic" starts
+// its log lines "panic: ...") and are relayed then, late. Standard
 // input and output and every other open file are the program's own, as
 // without a limit, and progress bars are drawn when standard error was a
 // terminal.

@@ -1,5 +1,5 @@
 // Package stopsig catches the signals that stop a run (SIGINT, SIGTERM,
-// SIGHUP) from the program's first moments, so that one arriving while
+// SIGHUP, SIGQUIT) from the program's first moments, so that one arriving while
 // the program still sets itself up (GDAL's drivers, the command line) is
 // neither lost nor left to the runtime's default, which ends the process
 // without the exit code and message of a stopped run. A SIGINT or
@@ -43,11 +43,14 @@ func init() {
 	signal.Notify(brokenPipe, syscall.SIGPIPE)
 }
 
-// Listen catches SIGINT, SIGTERM and SIGHUP and returns the channel they
-// arrive on. The package's init calls it; calling it again (a command run
+// Listen catches SIGINT, SIGTERM, SIGHUP and SIGQUIT and returns the
+// channel they arrive on. SIGQUIT (Ctrl-\ on a terminal) is a stop like
+// the others: left to Go's runtime, it printed every goroutine's stack
+// on the terminal, exited 2 (the code of bad input) and left the staging
+// folder beside --out. The package's init calls it; calling it again (a command run
 // twice in one process, as tests do) after Stop catches them again.
 func Listen() <-chan os.Signal {
-	signal.Notify(caught, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	signal.Notify(caught, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP, syscall.SIGQUIT)
 	return caught
 }
 
