@@ -136,10 +136,12 @@ func (r *Raster) readBlocks() iter.Seq[block] {
 	}
 }
 
-// Strips describes how a windowed raster is read, for run.log ("in 24
-// windows of 341 rows inside its 1 strip of 8165 rows, each strip decoded
-// once (400 MB)"), or returns "" for a raster read in its own blocks.
-func (r *Raster) Strips() string {
+// Strips describes how a windowed raster is read by a pass over rows (nil:
+// every row), for run.log ("in 24 windows of 341 rows inside its 1 strip
+// of 8165 rows, each strip decoded once (400 MB)"; a shard's pass reads
+// only the windows meeting its rows), or returns "" for a raster read in
+// its own blocks.
+func (r *Raster) Strips(rows *RowRange) string {
 	if !r.windowed {
 		return ""
 	}
@@ -149,7 +151,7 @@ func (r *Raster) Strips() string {
 		s = "strip"
 	}
 	return fmt.Sprintf("in %d windows of %d rows inside its %d %s of %d rows, each strip decoded once (%.0f MB)",
-		r.Blocks(), r.blockH, strips, s, r.fileH, float64(r.storedBytes())/1e6)
+		r.BlocksIn(rows), r.blockH, strips, s, r.fileH, float64(r.storedBytes())/1e6)
 }
 
 // ReadBytes returns Raster.ReadBytes of the raster at path, and whether
