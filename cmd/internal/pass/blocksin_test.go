@@ -1,6 +1,7 @@
 package pass
 
 import (
+	"fmt"
 	"path/filepath"
 	"testing"
 
@@ -65,5 +66,43 @@ func TestBlocksInCountsTheBlocksRead(t *testing.T) {
 	}
 	if rt.BlocksIn(nil) != rt.Blocks() || rs.BlocksIn(nil) != rs.Blocks() || v.BlocksIn(nil) != v.Blocks() {
 		t.Errorf("BlocksIn(nil) %d %d %d, want Blocks %d %d %d", rt.BlocksIn(nil), rs.BlocksIn(nil), v.BlocksIn(nil), rt.Blocks(), rs.Blocks(), v.Blocks())
+	}
+}
+
+// TestStripsWording: run.log's words for a windowed raster (the cap
+// lowered to 300 x 16 cells, windows of 16 rows), the expected counts
+// worked by hand from the layouts: a one-strip 300 x 500 raster is read
+// in 32 windows (500 / 16 rounded up) inside 1 strip; a shard of rows 0
+// to 9 meets 1 window ("1 windows" before); strips of 200 rows are 3
+// strips (500 / 200 rounded up); a 512 x 512 tile on a 300 x 500 grid is
+// a block of 512 x 512 cells, not "a strip of 512 rows" on a grid of 500.
+func TestStripsWording(t *testing.T) {
+	defer func(n int) { readCells = n }(readCells)
+	readCells = 300 * 16
+	dir := t.TempDir()
+	value := func(r, c int) float32 { return float32((r*7+c*3)%100) / 100 }
+	for _, tc := range []struct {
+		name string
+		opts []string
+		rows *RowRange
+		want string
+	}{
+		{"one strip", []string{"BLOCKYSIZE=500", "COMPRESS=DEFLATE"}, nil,
+			"in 32 windows of 16 rows inside its 1 strip of 500 rows, each strip decoded once (1 MB)"},
+		{"one strip, a shard of 10 rows", []string{"BLOCKYSIZE=500", "COMPRESS=DEFLATE"}, &RowRange{0, 10},
+			"in 1 window of 16 rows inside its 1 strip of 500 rows, each strip decoded once (1 MB)"},
+		{"strips of 200 rows", []string{"BLOCKYSIZE=200", "COMPRESS=DEFLATE"}, nil,
+			"in 32 windows of 16 rows inside its 3 strips of 200 rows, each strip decoded once (0 MB)"},
+		{"a tile larger than the grid", []string{"TILED=YES", "BLOCKXSIZE=512", "BLOCKYSIZE=512", "COMPRESS=DEFLATE"}, nil,
+			"in 32 windows of 16 rows inside its 1 block of 512 x 512 cells, each block decoded once (1 MB)"},
+	} {
+		path := filepath.Join(dir, fmt.Sprintf("r%d.tif", len(tc.name)))
+		writeGridRaster(t, path, 300, 500, false, value, tc.opts...)
+		g, r := openPath(t, path)
+		if got := r.Strips(tc.rows); got != tc.want {
+			t.Errorf("%s: got %q, want %q", tc.name, got, tc.want)
+		}
+		r.Close()
+		g.Close()
 	}
 }
