@@ -200,7 +200,7 @@ func runUnits(ctx context.Context, o *Options, studies []*study, units []unit, e
 			continue
 		}
 		if errors.Is(err, batch.ErrTooLarge) {
-			err = fmt.Errorf("%w; give more with --memory, or make the study smaller (coarser or clipped rasters, fewer extents or workers)", err)
+			err = fmt.Errorf("%w%s; give more with --memory, or make the study smaller (coarser or clipped rasters, fewer extents or workers)", err, pipeline.StripsAdvice(studies[u.study].opts))
 		}
 		if u.shard > 0 {
 			err = fmt.Errorf("shard %d/%d: %w", u.shard, o.Shards, err)

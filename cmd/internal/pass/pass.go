@@ -531,6 +531,28 @@ func (r *Raster) Blocks() int {
 	return nx * ny
 }
 
+// BlocksIn returns the number of blocks a pass over rows reads (every
+// block when rows is nil), for run.log: a shard's pass reads only the
+// block rows meeting its rows.
+func (r *Raster) BlocksIn(rows *RowRange) int {
+	return blocksIn(r.width, r.height, r.blockW, r.blockH, rows)
+}
+
+// blocksIn returns the number of blocks of bw x bh cells of a width x
+// height grid that meet rows (all when rows is nil), as passRun.blockRange
+// takes them.
+func blocksIn(width, height, bw, bh int, rows *RowRange) int {
+	nx := (width + bw - 1) / bw
+	first, end := 0, height
+	if rows != nil {
+		first, end = max(rows.First, 0), min(rows.End, height)
+	}
+	if end <= first {
+		return 0
+	}
+	return nx * ((end+bh-1)/bh - first/bh)
+}
+
 // ReadValid returns the cells with a valid value.
 func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (*extent.Valid, error) {
 	v := extent.NewValid(g.Width, g.Height)

@@ -136,6 +136,12 @@ func (v *Virtual) Blocks() int {
 	return ((v.g.Width + VirtualBlock - 1) / VirtualBlock) * ((v.g.Height + VirtualBlock - 1) / VirtualBlock)
 }
 
+// BlocksIn returns the number of blocks a pass over rows computes (every
+// block when rows is nil), for run.log.
+func (v *Virtual) BlocksIn(rows *RowRange) int {
+	return blocksIn(v.g.Width, v.g.Height, VirtualBlock, VirtualBlock, rows)
+}
+
 // virtualSource is one worker's Source of a Virtual: it computes the cells
 // of a block that lie in some member of the family, those of the block's
 // segments (the block's plan, handed over by the pass with usePlan before

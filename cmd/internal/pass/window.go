@@ -136,20 +136,32 @@ func (r *Raster) readBlocks() iter.Seq[block] {
 	}
 }
 
-// Strips describes how a windowed raster is read, for run.log ("in 24
-// windows of 341 rows inside its 1 strip of 8165 rows, each strip decoded
-// once (400 MB)"), or returns "" for a raster read in its own blocks.
-func (r *Raster) Strips() string {
+// Strips describes how a windowed raster is read by a pass over rows (nil:
+// every row), for run.log ("in 24 windows of 341 rows inside its 1 strip
+// of 8165 rows, each strip decoded once (400 MB)"; a shard's pass reads
+// only the windows meeting its rows), or returns "" for a raster read in
+// its own blocks. A tile as wide as the grid or wider, or taller than it
+// (4096 x 4096 cells on a grid of 3000 x 2400), is named a block of its
+// size, not a strip of more rows than the grid has.
+func (r *Raster) Strips(rows *RowRange) string {
 	if !r.windowed {
 		return ""
 	}
 	strips := (r.height + r.fileH - 1) / r.fileH
-	s := "strips"
-	if strips == 1 {
-		s = "strip"
+	unit, size := "strip", fmt.Sprintf("%d rows", r.fileH)
+	if r.fileW != r.width || r.fileH > r.height {
+		unit, size = "block", fmt.Sprintf("%d x %d cells", r.fileW, r.fileH)
 	}
-	return fmt.Sprintf("in %d windows of %d rows inside its %d %s of %d rows, each strip decoded once (%.0f MB)",
-		r.Blocks(), r.blockH, strips, s, r.fileH, float64(r.storedBytes())/1e6)
+	return fmt.Sprintf("in %s of %d rows inside its %s of %s, each %s decoded once (%.0f MB)",
+		counted(r.BlocksIn(rows), "window"), r.blockH, counted(strips, unit), size, unit, float64(r.storedBytes())/1e6)
+}
+
+// counted returns "1 noun" or "n nouns".
+func counted(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
 }
 
 // ReadBytes returns Raster.ReadBytes of the raster at path, and whether

@@ -184,14 +184,37 @@ func (s *Study) checkMemory() error {
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
 		return nil
 	}
-	strips := ""
-	if stripped != "" {
-		strips = fmt.Sprintf(", reading %s, stored in strips of the whole width that GDAL decodes whole, holds %s (a tiled copy is read with a few MB: gdal_translate -co TILED=YES -co COMPRESS=DEFLATE %s TILED.tif)", stripped, gib(reads), stripped)
-	}
+	strips := stripsAdvice(stripped, reads)
 	return fault.BadInput(fmt.Errorf("this run needs about %s of memory but %s is available: the %dx%d grid alone needs up to %s for the cells with data (at most 1 bit per cell) and the extents' row runs, "+
 		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples%s; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers, extents or --iterations",
 		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples), strips))
+}
+
+// stripsAdvice is what a memory refusal says when reading the raster at
+// stripped, stored in strips of the whole width (read in windows), holds
+// the most (reads bytes), or "" when stripped is "".
+func stripsAdvice(stripped string, reads int64) string {
+	if stripped == "" {
+		return ""
+	}
+	return fmt.Sprintf(", reading %s, stored in strips of the whole width that GDAL decodes whole, holds %s (a tiled copy is read with a few MB: gdal_translate -co TILED=YES -co COMPRESS=DEFLATE %s TILED.tif)", stripped, gib(reads), stripped)
+}
+
+// StripsAdvice returns what a run of o refused for memory says about a
+// model or null stored in strips of the whole width when reading it holds
+// the most (see checkMemory), or "": a batch adds it to a study too large
+// for its budget.
+func StripsAdvice(o Options) string {
+	workers := o.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	if o.ExtentsOnly {
+		workers = 0
+	}
+	reads, stripped := o.readBytes(workers)
+	return stripsAdvice(stripped, reads)
 }
 
 func gib(b int64) string {

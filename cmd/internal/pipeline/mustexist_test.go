@@ -190,3 +190,36 @@ func TestMustExistTilde(t *testing.T) {
 		}
 	}
 }
+
+// TestMustExistRasterFolder: a model or null given as a folder (a Zarr
+// store or an ArcInfo binary grid, which GDAL reads as a raster) is
+// refused with the copy into one file that areasweep reads; before, the
+// message said only "is a directory, not a file". Other inputs keep their
+// words (a region's .gdb folder is a file geodatabase, read as such).
+func TestMustExistRasterFolder(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "suit.zarr")
+	if err := os.Mkdir(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		what string
+		want []string
+	}{
+		{"model m", []string{"model m: " + dir + " is a directory, not a file", "gdal_translate " + dir + " OUT.tif", "Zarr"}},
+		{"null effort", []string{"null effort: " + dir + " is a directory, not a file", "gdal_translate " + dir + " OUT.tif"}},
+		{"extra extent x", []string{"extra extent x: " + dir + " is a directory, not a file"}},
+	} {
+		err := mustExist(tc.what, dir)
+		if err == nil || !fault.IsBadInput(err) {
+			t.Fatalf("%s: mustExist = %v, want a bad input", tc.what, err)
+		}
+		for _, w := range tc.want {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s: %q lacks %q", tc.what, err, w)
+			}
+		}
+		if tc.what == "extra extent x" && strings.Contains(err.Error(), "gdal_translate") {
+			t.Errorf("%s: %q advises a raster copy", tc.what, err)
+		}
+	}
+}

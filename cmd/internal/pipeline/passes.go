@@ -209,6 +209,7 @@ func (s *Study) SetSums(f SumsFunc) {
 type Source interface {
 	Sample(g *extent.Grid, cells []int) ([]float64, []bool, error)
 	Blocks() int
+	BlocksIn(rows *pass.RowRange) int
 	Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layout, opt pass.Options) ([]*metrics.Accumulator, pass.Stats, error)
 }
 
@@ -323,11 +324,12 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 	if s.rows != nil {
 		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
 	}
-	blocks := fmt.Sprintf("block by block (%d blocks)", p.src.Blocks())
-	if r, ok := p.src.(*pass.Raster); ok && r.Strips() != "" {
-		blocks = r.Strips()
+	n := p.src.BlocksIn(s.rows) // a shard's pass reads only the blocks meeting its rows
+	blocks := fmt.Sprintf("block by block (%d blocks)", n)
+	if r, ok := p.src.(*pass.Raster); ok && r.Strips(s.rows) != "" {
+		blocks = r.Strips(s.rows)
 	} else if ok && r.Reused() > 0 {
-		blocks = fmt.Sprintf("block by block (%d blocks, %d of them decoded when the points were sampled)", p.src.Blocks(), r.Reused())
+		blocks = fmt.Sprintf("block by block (%d blocks, %d of them decoded when the points were sampled)", n, r.Reused())
 	}
 	s.logf("%s: %s, %s, and added to the sums of all %d extents in %.2f s", m.Name, how, blocks, len(fam.Members), time.Since(t0).Seconds())
 	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: opt.Preview}, nil

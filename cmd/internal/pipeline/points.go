@@ -391,6 +391,12 @@ func mustExist(what, path string) error {
 		}
 		return fault.BadInput(fmt.Errorf("%s: %s does not exist or cannot be read; check the path", what, path))
 	}
+	if st.IsDir() && (strings.HasPrefix(what, "model ") || strings.HasPrefix(what, "null ")) {
+		// GDAL reads some rasters stored as a folder (a Zarr store, an
+		// ArcInfo binary grid); areasweep hashes one file per input.
+		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file; areasweep reads a raster from one file (it records and rechecks each input's SHA-256): "+
+			"if it is a raster stored as a folder (a Zarr store, an ArcInfo binary grid), copy it into one file (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
+	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
 	}
