@@ -163,7 +163,7 @@ func TestBatch(t *testing.T) {
 			t.Fatalf("--jobs %s: exit %d, want 1 (one study fails)\n%s", jobs, code, se)
 		}
 		if !strings.Contains(so, "summary: "+filepath.Join(outs[i], "summary.html")) || !strings.Contains(se, "1 of 3 studies failed: broken") ||
-			!strings.Contains(se, "running the same command again retries them, once what their lines name is fixed") {
+			!strings.Contains(se, "running the same command again retries it, once what its line names is fixed") {
 			t.Errorf("--jobs %s: stdout %q stderr %q", jobs, so, se)
 		}
 		if forbidden.MatchString(se) {

@@ -35,8 +35,8 @@ func TestBatchForceIntoFolderWithoutMarker(t *testing.T) {
 	}
 	// The closing line too: it said that running the same command again
 	// retries the study, which fails the same way.
-	if !strings.Contains(se, "--force runs them again (their folders hold files but no completion marker") ||
-		strings.Contains(se, "running the same command again retries them") {
+	if !strings.Contains(se, "--force runs it again (its folder holds files but no completion marker") ||
+		strings.Contains(se, "running the same command again retries it") {
 		t.Errorf("without --force: the closing line does not say --force runs it again:\n%s", se)
 	}
 	_, se, code = runBin(t, "batch", table, "--out", out, "--only", "beta", "--quiet", "--force")

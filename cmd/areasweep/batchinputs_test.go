@@ -119,7 +119,7 @@ func TestBatchInputReplaced(t *testing.T) {
 		t.Fatalf("occ.csv replaced: exit %d, want 1 (as for a changed row): %s", code, se)
 	}
 	for _, want := range []string{"b: already finished, skipped", "1 of 2 studies failed: a",
-		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs them again (they were made from other settings or inputs, or their completion marker is damaged)"} {
+		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs it again (it was made from other settings or inputs, or its completion marker is damaged)"} {
 		if !strings.Contains(se, want) {
 			t.Errorf("occ.csv replaced: stderr lacks %q:\n%s", want, se)
 		}

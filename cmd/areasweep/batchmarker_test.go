@@ -25,7 +25,7 @@ func TestBatchDamagedMarker(t *testing.T) {
 		if code != 1 {
 			t.Errorf("marker %q: exit %d, want 1: %s", body, code, se)
 		}
-		for _, want := range []string{"1 of 2 studies failed: two", marker, "empty or damaged", "add --force", "or their completion marker is damaged)"} {
+		for _, want := range []string{"1 of 2 studies failed: two", marker, "empty or damaged", "add --force", "or its completion marker is damaged)"} {
 			if !strings.Contains(se, want) {
 				t.Errorf("marker %q: stderr lacks %q: %s", body, want, se)
 			}

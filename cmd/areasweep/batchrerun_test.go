@@ -315,7 +315,7 @@ func TestBatchSummaryOnlyClosingLine(t *testing.T) {
 			if _, se, code := runBin(t, "batch", table, "--out", out, "--only", "a", "--quiet"); code != 0 {
 				t.Fatalf("--only a: exit %d: %s", code, se)
 			}
-		}, "running the batch command again without --summary-only retries them"},
+		}, "running the batch command again without --summary-only retries it"},
 		// b finished, then its occurrence file changed: only --force runs it.
 		{"made from other inputs", func() {
 			if _, se, code := runBin(t, "batch", table, "--out", out, "--quiet"); code != 0 {
@@ -330,7 +330,7 @@ func TestBatchSummaryOnlyClosingLine(t *testing.T) {
 				t.Fatal(err)
 			}
 			laterTime(t, occ)
-		}, "the batch command with --force and without --summary-only runs them again"},
+		}, "the batch command with --force and without --summary-only runs it again"},
 	} {
 		c.prepare()
 		_, se, code := runBin(t, "batch", table, "--out", out, "--summary-only", "--quiet")
@@ -340,7 +340,7 @@ func TestBatchSummaryOnlyClosingLine(t *testing.T) {
 		if !strings.Contains(se, c.want) {
 			t.Errorf("%s: closing line lacks %q:\n%s", c.name, c.want, se)
 		}
-		if strings.Contains(se, "running the same command again") || strings.Contains(se, "and --force runs them again") {
+		if strings.Contains(se, "running the same command again") || strings.Contains(se, "and --force runs it again") {
 			t.Errorf("%s: closing line tells to run --summary-only again, which runs nothing:\n%s", c.name, se)
 		}
 	}

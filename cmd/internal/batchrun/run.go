@@ -248,12 +248,22 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 	if o.SummaryOnly {
 		rerun, force = "running the batch command again without --summary-only", "the batch command with --force and without --summary-only"
 	}
+	// One failed study is "it" (the cases below the first four need two).
 	again := rerun + " retries them, once what their lines name is fixed"
+	if failed == 1 {
+		again = rerun + " retries it, once what its line names is fixed"
+	}
 	switch {
+	case damaged == failed && failed == 1:
+		again = "its line says what to do"
 	case damaged == failed:
 		again = "each line says what to do"
+	case stale == failed && failed == 1:
+		again = force + " runs it again (it was made from other settings or inputs, or its completion marker is damaged)"
 	case stale == failed:
 		again = force + " runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
+	case occupied == failed && failed == 1:
+		again = force + " runs it again (its folder holds files but no completion marker; it replaces areasweep's files only)"
 	case occupied == failed:
 		again = force + " runs them again (their folders hold files but no completion marker; it replaces areasweep's files only)"
 	case stale+occupied == failed:
