@@ -81,6 +81,8 @@ var (
 	codeSpan  = regexp.MustCompile("`([^`\n]+)`")
 	linkPart  = regexp.MustCompile(`\]\([^)]*\)`)
 	headingRe = regexp.MustCompile("(?m)^#{2,4} .*$")
+	// flagRow is a flag table's row: "| `--name ...` |".
+	flagRow = regexp.MustCompile("(?m)^\\| `--([A-Za-z][A-Za-z0-9-]*)")
 	// sensHeading is a field heading below sensitivity: "`spreads[]`: ...".
 	sensHeading = regexp.MustCompile("^`([a-z_]+)(\\[\\])?`(:|$)")
 )
@@ -175,7 +177,22 @@ func checkREADMEFlags(readme string, cmds map[string]*cobra.Command) []string {
 		}
 	}
 
-	// Every flag of every command is named somewhere.
+	// Every flag of every command is named somewhere, and listed where a
+	// user looks flags up: the Commands and options section, or a flag
+	// table's row (batch's is under Many studies).
+	listed := map[string]bool{}
+	if i := strings.Index(readme, "\n## Commands and options\n"); i >= 0 {
+		sec := readme[i+1:]
+		if j := strings.Index(sec, "\n## "); j >= 0 {
+			sec = sec[:j]
+		}
+		for _, m := range flagToken.FindAllStringSubmatch(linkPart.ReplaceAllString(sec, "]"), -1) {
+			listed[m[2]] = true
+		}
+	}
+	for _, m := range flagRow.FindAllStringSubmatch(readme, -1) {
+		listed[m[1]] = true
+	}
 	var paths []string
 	for p := range cmds {
 		paths = append(paths, p)
@@ -183,10 +200,13 @@ func checkREADMEFlags(readme string, cmds map[string]*cobra.Command) []string {
 	sort.Strings(paths)
 	for _, p := range paths {
 		cmds[p].Flags().VisitAll(func(f *pflag.Flag) {
-			if f.Hidden || f.Name == "help" || named[f.Name] {
-				return
+			switch {
+			case f.Hidden || f.Name == "help":
+			case !named[f.Name]:
+				problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which README.md never names", p, f.Name))
+			case !listed[f.Name]:
+				problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which neither README's Commands and options section nor a flag table lists", p, f.Name))
 			}
-			problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which README.md never names", p, f.Name))
 		})
 	}
 
@@ -289,6 +309,8 @@ func TestREADMEFlagCheckFails(t *testing.T) {
 		{"| `--jobs N` | `1` |", "| `--jobs N` | `2` |", "--jobs default `2`"},
 		{"--scenario-seed", "--scenario", "--scenario-seed, which README.md never names"},
 		{"`--scenario-seed 20261201`", "`--scenario-seed 1`", "the default --scenario-seed 1"},
+		{"add `--no-descriptions` to leave out", "add the flag to leave out", "--no-descriptions, which README.md never names"},
+		{"| `--summary-only` | off |", "| `--summary-onIy` | off |", "--summary-only, which neither README's Commands and options section nor a flag table lists"},
 	} {
 		if !strings.Contains(readme, c.old) {
 			t.Fatalf("README no longer holds %q: update this test", c.old)
