@@ -331,10 +331,11 @@ func TestREADMEFlagCheckFails(t *testing.T) {
 // ("metrics[]" read as "metrics"). A table belongs to the heading above
 // it: a bold "**`path`**" ("**Top level" is the top level), or, below the
 // sensitivity heading, a line starting "`name`" for "sensitivity.name".
-func readmeFieldTables(readme string) map[string][]string {
+// meanings holds each row's meaning cell by "path.field".
+func readmeFieldTables(readme string) (tables map[string][]string, meanings map[string]string) {
 	sec := readme[strings.Index(readme, "### results.json"):]
 	sec = sec[:strings.Index(sec, "\n### scores.csv")]
-	tables := map[string][]string{}
+	tables, meanings = map[string][]string{}, map[string]string{}
 	path, open, inTable, parent := "", false, false, ""
 	for _, l := range strings.Split(sec, "\n") {
 		isRow := strings.HasPrefix(l, "|")
@@ -350,15 +351,18 @@ func readmeFieldTables(readme string) map[string][]string {
 		case sensHeading.MatchString(l) && parent == "sensitivity":
 			path, open = "sensitivity."+sensHeading.FindStringSubmatch(l)[1], true
 		case open && isRow && strings.HasPrefix(l, "| `"):
-			for _, m := range codeSpan.FindAllStringSubmatch(strings.Split(l, "|")[1], -1) {
-				tables[path] = append(tables[path], strings.TrimSuffix(m[1], "[]"))
+			cells := strings.Split(l, "|")
+			for _, m := range codeSpan.FindAllStringSubmatch(cells[1], -1) {
+				f := strings.TrimSuffix(m[1], "[]")
+				tables[path] = append(tables[path], f)
+				meanings[strings.TrimPrefix(path+"."+f, ".")] = strings.Join(cells[2:], "|")
 			}
 		case !isRow && inTable:
 			open = false // one table per heading
 		}
 		inTable = isRow
 	}
-	return tables
+	return tables, meanings
 }
 
 // jsonFields returns the JSON names of the fields of the type at path
@@ -400,7 +404,7 @@ func jsonFields(t reflect.Type, path string) ([]string, error) {
 // and each field of the type is listed.
 func checkREADMEResults(readme string) []string {
 	var problems []string
-	tables := readmeFieldTables(readme)
+	tables, meanings := readmeFieldTables(readme)
 	for _, must := range []string{"", "settings", "inputs[]", "grid", "models[]", "scores[]"} {
 		if _, ok := tables[must]; !ok {
 			problems = append(problems, fmt.Sprintf("README lost the results.json field table of %q", must))
@@ -429,7 +433,41 @@ func checkREADMEResults(readme string) []string {
 			}
 		}
 	}
+	problems = append(problems, checkREADMEInnerFields(tables, meanings)...)
 	sort.Strings(problems)
+	return problems
+}
+
+// checkREADMEInnerFields checks the rows of the results.json tables below
+// the top level whose field holds objects without a table of their own
+// (sensitivity.metrics[], above_null[].gaps[], chains[].slope, ...):
+// the row's meaning must name each of their fields as `name`.
+func checkREADMEInnerFields(tables map[string][]string, meanings map[string]string) []string {
+	var problems []string
+	own := map[string]bool{}
+	for path := range tables {
+		own[strings.ReplaceAll(path, "[]", "")] = true
+	}
+	for path, listed := range tables {
+		if path == "" {
+			continue // each top-level field has its section below
+		}
+		for _, f := range listed {
+			sub := path + "." + f
+			if own[strings.ReplaceAll(sub, "[]", "")] {
+				continue
+			}
+			inner, err := jsonFields(reflect.TypeFor[report.Results](), sub)
+			if err != nil {
+				continue // not an object
+			}
+			for _, name := range inner {
+				if m := meanings[sub]; !strings.Contains(m, "`"+name+"`") && !strings.Contains(m, "`"+name+"[]`") {
+					problems = append(problems, fmt.Sprintf("README results.json table %q: the row of %q does not name its field %q", path, f, name))
+				}
+			}
+		}
+	}
 	return problems
 }
 
@@ -440,7 +478,7 @@ func TestREADMEResultsFields(t *testing.T) {
 }
 
 // TestREADMEFieldCheckFails checks that the field check sees a misnamed
-// field.
+// field, and a field of a row's objects that its meaning leaves out.
 func TestREADMEFieldCheckFails(t *testing.T) {
 	readme := readREADME(t)
 	const old = "| `iterations` |"
@@ -450,6 +488,15 @@ func TestREADMEFieldCheckFails(t *testing.T) {
 	p := strings.Join(checkREADMEResults(strings.Replace(readme, old, "| `iteration` |", 1)), "\n")
 	if !strings.Contains(p, `lists "iteration"`) || !strings.Contains(p, `lacks field "iterations"`) {
 		t.Errorf("a misnamed settings field was not reported: %s", p)
+	}
+	// A field of objects listed in a row's meaning (sensitivity.metrics[]).
+	const inner = "`higher_is_better`, `tolerance` |"
+	if !strings.Contains(readme, inner) {
+		t.Fatalf("README no longer holds %q: update this test", inner)
+	}
+	p = strings.Join(checkREADMEResults(strings.Replace(readme, inner, "`tolerance` |", 1)), "\n")
+	if !strings.Contains(p, `the row of "metrics" does not name its field "higher_is_better"`) {
+		t.Errorf("a field left out of sensitivity.metrics[]'s row was not reported: %s", p)
 	}
 }
 
