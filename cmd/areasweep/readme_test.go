@@ -12,6 +12,7 @@ import (
 	"sort"
 	"strings"
 	"testing"
+	"unicode"
 
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
@@ -80,6 +81,8 @@ var (
 	codeSpan  = regexp.MustCompile("`([^`\n]+)`")
 	linkPart  = regexp.MustCompile(`\]\([^)]*\)`)
 	headingRe = regexp.MustCompile("(?m)^#{2,4} .*$")
+	// flagRow is a flag table's row: "| `--name ...` |".
+	flagRow = regexp.MustCompile("(?m)^\\| `--([A-Za-z][A-Za-z0-9-]*)")
 	// sensHeading is a field heading below sensitivity: "`spreads[]`: ...".
 	sensHeading = regexp.MustCompile("^`([a-z_]+)(\\[\\])?`(:|$)")
 )
@@ -174,7 +177,22 @@ func checkREADMEFlags(readme string, cmds map[string]*cobra.Command) []string {
 		}
 	}
 
-	// Every flag of every command is named somewhere.
+	// Every flag of every command is named somewhere, and listed where a
+	// user looks flags up: the Commands and options section, or a flag
+	// table's row (batch's is under Many studies).
+	listed := map[string]bool{}
+	if i := strings.Index(readme, "\n## Commands and options\n"); i >= 0 {
+		sec := readme[i+1:]
+		if j := strings.Index(sec, "\n## "); j >= 0 {
+			sec = sec[:j]
+		}
+		for _, m := range flagToken.FindAllStringSubmatch(linkPart.ReplaceAllString(sec, "]"), -1) {
+			listed[m[2]] = true
+		}
+	}
+	for _, m := range flagRow.FindAllStringSubmatch(readme, -1) {
+		listed[m[1]] = true
+	}
 	var paths []string
 	for p := range cmds {
 		paths = append(paths, p)
@@ -182,10 +200,13 @@ func checkREADMEFlags(readme string, cmds map[string]*cobra.Command) []string {
 	sort.Strings(paths)
 	for _, p := range paths {
 		cmds[p].Flags().VisitAll(func(f *pflag.Flag) {
-			if f.Hidden || f.Name == "help" || named[f.Name] {
-				return
+			switch {
+			case f.Hidden || f.Name == "help":
+			case !named[f.Name]:
+				problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which README.md never names", p, f.Name))
+			case !listed[f.Name]:
+				problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which neither README's Commands and options section nor a flag table lists", p, f.Name))
 			}
-			problems = append(problems, fmt.Sprintf("'areasweep %s' has flag --%s, which README.md never names", p, f.Name))
 		})
 	}
 
@@ -288,6 +309,8 @@ func TestREADMEFlagCheckFails(t *testing.T) {
 		{"| `--jobs N` | `1` |", "| `--jobs N` | `2` |", "--jobs default `2`"},
 		{"--scenario-seed", "--scenario", "--scenario-seed, which README.md never names"},
 		{"`--scenario-seed 20261201`", "`--scenario-seed 1`", "the default --scenario-seed 1"},
+		{"add `--no-descriptions` to leave out", "add the flag to leave out", "--no-descriptions, which README.md never names"},
+		{"| `--summary-only` | off |", "| `--summary-onIy` | off |", "--summary-only, which neither README's Commands and options section nor a flag table lists"},
 	} {
 		if !strings.Contains(readme, c.old) {
 			t.Fatalf("README no longer holds %q: update this test", c.old)
@@ -308,10 +331,11 @@ func TestREADMEFlagCheckFails(t *testing.T) {
 // ("metrics[]" read as "metrics"). A table belongs to the heading above
 // it: a bold "**`path`**" ("**Top level" is the top level), or, below the
 // sensitivity heading, a line starting "`name`" for "sensitivity.name".
-func readmeFieldTables(readme string) map[string][]string {
+// meanings holds each row's meaning cell by "path.field".
+func readmeFieldTables(readme string) (tables map[string][]string, meanings map[string]string) {
 	sec := readme[strings.Index(readme, "### results.json"):]
 	sec = sec[:strings.Index(sec, "\n### scores.csv")]
-	tables := map[string][]string{}
+	tables, meanings = map[string][]string{}, map[string]string{}
 	path, open, inTable, parent := "", false, false, ""
 	for _, l := range strings.Split(sec, "\n") {
 		isRow := strings.HasPrefix(l, "|")
@@ -327,15 +351,18 @@ func readmeFieldTables(readme string) map[string][]string {
 		case sensHeading.MatchString(l) && parent == "sensitivity":
 			path, open = "sensitivity."+sensHeading.FindStringSubmatch(l)[1], true
 		case open && isRow && strings.HasPrefix(l, "| `"):
-			for _, m := range codeSpan.FindAllStringSubmatch(strings.Split(l, "|")[1], -1) {
-				tables[path] = append(tables[path], strings.TrimSuffix(m[1], "[]"))
+			cells := strings.Split(l, "|")
+			for _, m := range codeSpan.FindAllStringSubmatch(cells[1], -1) {
+				f := strings.TrimSuffix(m[1], "[]")
+				tables[path] = append(tables[path], f)
+				meanings[strings.TrimPrefix(path+"."+f, ".")] = strings.Join(cells[2:], "|")
 			}
 		case !isRow && inTable:
 			open = false // one table per heading
 		}
 		inTable = isRow
 	}
-	return tables
+	return tables, meanings
 }
 
 // jsonFields returns the JSON names of the fields of the type at path
@@ -377,7 +404,7 @@ func jsonFields(t reflect.Type, path string) ([]string, error) {
 // and each field of the type is listed.
 func checkREADMEResults(readme string) []string {
 	var problems []string
-	tables := readmeFieldTables(readme)
+	tables, meanings := readmeFieldTables(readme)
 	for _, must := range []string{"", "settings", "inputs[]", "grid", "models[]", "scores[]"} {
 		if _, ok := tables[must]; !ok {
 			problems = append(problems, fmt.Sprintf("README lost the results.json field table of %q", must))
@@ -406,7 +433,41 @@ func checkREADMEResults(readme string) []string {
 			}
 		}
 	}
+	problems = append(problems, checkREADMEInnerFields(tables, meanings)...)
 	sort.Strings(problems)
+	return problems
+}
+
+// checkREADMEInnerFields checks the rows of the results.json tables below
+// the top level whose field holds objects without a table of their own
+// (sensitivity.metrics[], above_null[].gaps[], chains[].slope, ...):
+// the row's meaning must name each of their fields as `name`.
+func checkREADMEInnerFields(tables map[string][]string, meanings map[string]string) []string {
+	var problems []string
+	own := map[string]bool{}
+	for path := range tables {
+		own[strings.ReplaceAll(path, "[]", "")] = true
+	}
+	for path, listed := range tables {
+		if path == "" {
+			continue // each top-level field has its section below
+		}
+		for _, f := range listed {
+			sub := path + "." + f
+			if own[strings.ReplaceAll(sub, "[]", "")] {
+				continue
+			}
+			inner, err := jsonFields(reflect.TypeFor[report.Results](), sub)
+			if err != nil {
+				continue // not an object
+			}
+			for _, name := range inner {
+				if m := meanings[sub]; !strings.Contains(m, "`"+name+"`") && !strings.Contains(m, "`"+name+"[]`") {
+					problems = append(problems, fmt.Sprintf("README results.json table %q: the row of %q does not name its field %q", path, f, name))
+				}
+			}
+		}
+	}
 	return problems
 }
 
@@ -417,7 +478,7 @@ func TestREADMEResultsFields(t *testing.T) {
 }
 
 // TestREADMEFieldCheckFails checks that the field check sees a misnamed
-// field.
+// field, and a field of a row's objects that its meaning leaves out.
 func TestREADMEFieldCheckFails(t *testing.T) {
 	readme := readREADME(t)
 	const old = "| `iterations` |"
@@ -427,6 +488,15 @@ func TestREADMEFieldCheckFails(t *testing.T) {
 	p := strings.Join(checkREADMEResults(strings.Replace(readme, old, "| `iteration` |", 1)), "\n")
 	if !strings.Contains(p, `lists "iteration"`) || !strings.Contains(p, `lacks field "iterations"`) {
 		t.Errorf("a misnamed settings field was not reported: %s", p)
+	}
+	// A field of objects listed in a row's meaning (sensitivity.metrics[]).
+	const inner = "`higher_is_better`, `tolerance` |"
+	if !strings.Contains(readme, inner) {
+		t.Fatalf("README no longer holds %q: update this test", inner)
+	}
+	p = strings.Join(checkREADMEResults(strings.Replace(readme, inner, "`tolerance` |", 1)), "\n")
+	if !strings.Contains(p, `the row of "metrics" does not name its field "higher_is_better"`) {
+		t.Errorf("a field left out of sensitivity.metrics[]'s row was not reported: %s", p)
 	}
 }
 
@@ -702,6 +772,261 @@ func TestREADMESetUp(t *testing.T) {
 	for _, says := range []string{"`bin/areasweep`", "bin/areasweep demo --out areasweep-demo --force", "`areasweep-demo`", "`scripts/setup.sh --test`", "`gofmt -l .`", "`go vet ./...`", "`go test -count=1 ./...`", "`go test -race -short -count=1`"} {
 		if !strings.Contains(flat, says) {
 			t.Errorf("README's set-up paragraphs no longer say %s", says)
+		}
+	}
+}
+
+var (
+	mdHeading    = regexp.MustCompile(`^#{1,6} `)
+	mdLink       = regexp.MustCompile(`\[([^\]]*)\]\([^)]*\)`)
+	mdLinkTarget = regexp.MustCompile(`\]\(([^)\s]+)\)`)
+)
+
+// githubAnchor returns the anchor GitHub gives a heading: its text as
+// shown (code spans and links keep their text), in lower case, with every
+// character but letters, digits, spaces, '-' and '_' removed and each
+// space turned into '-'.
+func githubAnchor(heading string) string {
+	h := strings.TrimSpace(strings.TrimLeft(heading, "#"))
+	h = mdLink.ReplaceAllString(h, "$1")
+	var b strings.Builder
+	for _, r := range strings.ToLower(h) {
+		switch {
+		case r == ' ':
+			b.WriteRune('-')
+		case r == '-' || r == '_' || unicode.IsLetter(r) || unicode.IsDigit(r):
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// markdownAnchors returns the anchors of the headings of md outside code
+// blocks, a repeated one numbered as GitHub numbers it ("x", "x-1").
+func markdownAnchors(md string) map[string]bool {
+	anchors := map[string]bool{}
+	seen := map[string]int{}
+	inBlock := false
+	for _, l := range strings.Split(md, "\n") {
+		if strings.HasPrefix(l, "```") {
+			inBlock = !inBlock
+			continue
+		}
+		if inBlock || !mdHeading.MatchString(l) {
+			continue
+		}
+		a := githubAnchor(l)
+		if n := seen[a]; n > 0 {
+			anchors[fmt.Sprintf("%s-%d", a, n)] = true
+		} else {
+			anchors[a] = true
+		}
+		seen[a]++
+	}
+	return anchors
+}
+
+// checkMarkdownLinks returns the links of the documents docs (by file
+// name) that lead nowhere: an "#anchor" no heading of its document has, a
+// link to another document that is not among docs, or an anchor that
+// document lacks. Code blocks and code spans are not read; links to the
+// web are left alone.
+func checkMarkdownLinks(docs map[string]string) []string {
+	var problems []string
+	var names []string
+	anchors := map[string]map[string]bool{}
+	for name, doc := range docs {
+		names = append(names, name)
+		anchors[name] = markdownAnchors(doc)
+	}
+	sort.Strings(names)
+	for _, name := range names {
+		inBlock := false
+		for n, l := range strings.Split(docs[name], "\n") {
+			if strings.HasPrefix(l, "```") {
+				inBlock = !inBlock
+				continue
+			}
+			if inBlock {
+				continue
+			}
+			for _, m := range mdLinkTarget.FindAllStringSubmatch(codeSpan.ReplaceAllString(l, ""), -1) {
+				target := m[1]
+				if strings.Contains(target, "://") || strings.HasPrefix(target, "mailto:") {
+					continue
+				}
+				file, anchor, _ := strings.Cut(target, "#")
+				if file == "" {
+					file = name
+				}
+				switch {
+				case anchors[file] == nil:
+					problems = append(problems, fmt.Sprintf("%s line %d: link to %s, which is not one of the documents", name, n+1, target))
+				case anchor != "" && !anchors[file][anchor]:
+					problems = append(problems, fmt.Sprintf("%s line %d: link to %s, which no heading of %s has", name, n+1, target, file))
+				}
+			}
+		}
+	}
+	return problems
+}
+
+// readDocs returns README.md and DEVELOPERS.md by name.
+func readDocs(t *testing.T) map[string]string {
+	t.Helper()
+	docs := map[string]string{}
+	for _, name := range []string{"README.md", "DEVELOPERS.md"} {
+		b, err := os.ReadFile(filepath.Join("..", "..", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		docs[name] = string(b)
+	}
+	return docs
+}
+
+// TestDocsLinks checks that every link within README.md and DEVELOPERS.md
+// leads to a heading that exists (GitHub's anchors).
+func TestDocsLinks(t *testing.T) {
+	docs := readDocs(t)
+	for _, p := range checkMarkdownLinks(docs) {
+		t.Error(p)
+	}
+}
+
+// TestDocsLinksCheckFails checks that the link check catches a misspelt
+// anchor, a renamed heading and a link to a missing document, and that
+// the anchors follow GitHub's rules (worked by hand from GitHub's
+// rendering of such headings).
+func TestDocsLinksCheckFails(t *testing.T) {
+	for heading, want := range map[string]string{
+		"### Files in `--out`":                                             "files-in---out",
+		"### Model rasters (`--model NAME=PATH`, repeatable)":              "model-rasters---model-namepath-repeatable",
+		"### Shards: one run split across machines":                        "shards-one-run-split-across-machines",
+		"### What `batch` does":                                            "what-batch-does",
+		"#### Projected grids that are not equal-area (2026-12-03, night)": "projected-grids-that-are-not-equal-area-2026-12-03-night",
+	} {
+		if got := githubAnchor(heading); got != want {
+			t.Errorf("anchor of %q: %q, want %q", heading, got, want)
+		}
+	}
+	if a := markdownAnchors("## Notes\n```sh\n# not a heading\n```\n## Notes\n"); !a["notes"] || !a["notes-1"] || a["not-a-heading"] {
+		t.Errorf("anchors of a repeated heading and a code block's comment: %v", a)
+	}
+	docs := readDocs(t)
+	for _, c := range []struct{ file, old, new, want string }{
+		{"README.md", "](#files-in---out)", "](#files-in-out)", "#files-in-out, which no heading of README.md has"},
+		{"README.md", "## Many studies", "## Several studies", "#many-studies, which no heading of README.md has"},
+		{"DEVELOPERS.md", "](README.md)", "](USAGE.md)", "USAGE.md, which is not one of the documents"},
+	} {
+		if !strings.Contains(docs[c.file], c.old) {
+			t.Fatalf("%s no longer holds %q: update this test", c.file, c.old)
+		}
+		bad := map[string]string{}
+		for k, v := range docs {
+			bad[k] = v
+		}
+		bad[c.file] = strings.Replace(docs[c.file], c.old, c.new, 1)
+		got := strings.Join(checkMarkdownLinks(bad), "\n")
+		if !strings.Contains(got, c.want) {
+			t.Errorf("%s with %q for %q: the check reported %q, not %q", c.file, c.new, c.old, got, c.want)
+		}
+	}
+}
+
+// TestREADMEDemoStudyFile checks that the study file the README shows as
+// the demo's is the one the demo writes, byte for byte.
+func TestREADMEDemoStudyFile(t *testing.T) {
+	readme := readREADME(t)
+	const intro = "The demo's study file:\n\n```yaml\n"
+	i := strings.Index(readme, intro)
+	if i < 0 {
+		t.Fatalf("README no longer shows the demo's study file after %q: update this test", intro)
+	}
+	shown := readme[i+len(intro):]
+	shown = shown[:strings.Index(shown, "```")]
+	b, err := os.ReadFile(filepath.Join(walkthroughDemo(t).dir, "inputs", "study.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if string(b) != shown {
+		t.Errorf("README shows the demo's study file as\n%s\nthe demo writes\n%s", shown, b)
+	}
+}
+
+var (
+	makeTarget = regexp.MustCompile(`(?m)^([a-z][a-z0-9_-]*):`)
+	scriptPath = regexp.MustCompile(`(^|[^A-Za-z0-9_./-])(scripts/[A-Za-z0-9_.-]+)`)
+	goPackage  = regexp.MustCompile(`(^|\s)\./([A-Za-z0-9_/]+?)(/\.\.\.)?(\s|$)`)
+)
+
+// checkDocsCommands returns what the commands of docs (by file name)
+// name that does not exist in the repository at root: a `make TARGET`
+// the Makefile lacks, a scripts/NAME that is no executable file, and a
+// Go package (./path or ./path/...) of a `go ...` command that is no
+// folder.
+func checkDocsCommands(docs map[string]string, root string) []string {
+	var problems []string
+	mk, err := os.ReadFile(filepath.Join(root, "Makefile"))
+	if err != nil {
+		return []string{err.Error()}
+	}
+	targets := map[string]bool{}
+	for _, m := range makeTarget.FindAllStringSubmatch(string(mk), -1) {
+		targets[m[1]] = true
+	}
+	var names []string
+	for name := range docs {
+		names = append(names, name)
+	}
+	sort.Strings(names)
+	for _, name := range names {
+		for _, m := range codeSpan.FindAllStringSubmatch(docs[name], -1) {
+			span := m[1]
+			if f := strings.Fields(span); len(f) > 1 && f[0] == "make" && !targets[f[1]] && !strings.Contains(f[1], "=") {
+				problems = append(problems, fmt.Sprintf("%s: %q: the Makefile has no target %s", name, span, f[1]))
+			}
+			for _, s := range scriptPath.FindAllStringSubmatch(span, -1) {
+				if st, err := os.Stat(filepath.Join(root, s[2])); err != nil || st.Mode()&0o111 == 0 {
+					problems = append(problems, fmt.Sprintf("%s: %q: %s is no executable script", name, span, s[2]))
+				}
+			}
+			if !strings.HasPrefix(span, "go ") {
+				continue
+			}
+			for _, p := range goPackage.FindAllStringSubmatch(span, -1) {
+				if st, err := os.Stat(filepath.Join(root, p[2])); err != nil || !st.IsDir() {
+					problems = append(problems, fmt.Sprintf("%s: %q: no package folder %s", name, span, p[2]))
+				}
+			}
+		}
+	}
+	return problems
+}
+
+// TestDocsCommands checks that the make targets, scripts and Go packages
+// the commands of README.md and DEVELOPERS.md name exist.
+func TestDocsCommands(t *testing.T) {
+	for _, p := range checkDocsCommands(readDocs(t), filepath.Join("..", "..")) {
+		t.Error(p)
+	}
+}
+
+// TestDocsCommandsCheckFails checks that the command check catches a make
+// target, a script and a package that do not exist.
+func TestDocsCommandsCheckFails(t *testing.T) {
+	docs := readDocs(t)
+	for _, c := range []struct{ old, new, want string }{
+		{"| `make demo` |", "| `make demos` |", "the Makefile has no target demos"},
+		{"`scripts/slurm-local.sh start", "`scripts/slurm.sh start", "scripts/slurm.sh is no executable script"},
+		{"`go test -run '^$' -bench . -benchmem ./cmd/internal/scenario/`", "`go test -run '^$' -bench . -benchmem ./cmd/internal/scenarios/`", "no package folder cmd/internal/scenarios"},
+	} {
+		if !strings.Contains(docs["DEVELOPERS.md"], c.old) {
+			t.Fatalf("DEVELOPERS.md no longer holds %q: update this test", c.old)
+		}
+		bad := map[string]string{"DEVELOPERS.md": strings.Replace(docs["DEVELOPERS.md"], c.old, c.new, 1)}
+		if got := strings.Join(checkDocsCommands(bad, filepath.Join("..", "..")), "\n"); !strings.Contains(got, c.want) {
+			t.Errorf("DEVELOPERS.md with %q: the check reported %q, not %q", c.new, got, c.want)
 		}
 	}
 }
