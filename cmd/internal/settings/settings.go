@@ -224,7 +224,7 @@ var Table = []Setting{
 		Usage: "omission-rate and predicted-area difference `D` you treat as negligible (our default)",
 		Field: func(v *Values) any { return &v.ToleranceOmission }},
 	{Name: "tolerance-boyce", Kind: Float, Arg: "D", Study: true, Scoring: true,
-		Usage: "Boyce index difference `D` you treat as negligible (our default)",
+		Usage: "Boyce index difference `D` the report's description counts as large (Boyce differences are described, not judged; our default)",
 		Field: func(v *Values) any { return &v.ToleranceBoyce }},
 	// Not in a study file: they say how to run, not what to compute.
 	{Name: "force", Kind: Bool,
