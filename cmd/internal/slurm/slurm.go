@@ -466,7 +466,7 @@ func (s Submitter) sbatch(ctx context.Context, args ...string) (string, error) {
 		if msg == "" {
 			msg = err.Error()
 		}
-		return "", fmt.Errorf("%w: sbatch %s: %s", ErrSubmit, strings.Join(args, " "), msg)
+		return "", fmt.Errorf("%w: sbatch --parsable %s: %s", ErrSubmit, strings.Join(args, " "), msg)
 	}
 	// --parsable prints "JID" or "JID;CLUSTER".
 	id, _, _ := strings.Cut(strings.TrimSpace(string(out)), ";")

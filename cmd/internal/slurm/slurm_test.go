@@ -2,6 +2,7 @@ package slurm
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"os"
 	"os/exec"
@@ -246,4 +247,23 @@ func runArrayTask(t *testing.T, script string, k int, env ...string) (int, strin
 		t.Fatal(err)
 	}
 	return 0, string(out)
+}
+
+// TestSubmitErrorQuotesCommand: a refused submission quotes the command
+// as it was run, --parsable included (it quoted "sbatch --array=..."
+// while the command printed for the user reads "sbatch --parsable
+// --array=..."), with sbatch's own words; a fake sbatch refuses.
+func TestSubmitErrorQuotesCommand(t *testing.T) {
+	bin := t.TempDir()
+	if err := os.WriteFile(filepath.Join(bin, "sbatch"), []byte("#!/bin/sh\necho 'sbatch: error: no cluster here' >&2\nexit 1\n"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	// exec looks sbatch up in this process's PATH.
+	t.Setenv("PATH", bin+":"+os.Getenv("PATH"))
+	s := Submitter{Env: os.Environ()}
+	_, err := s.sbatch(context.Background(), "--array=1-2", "array.sh")
+	want := "sbatch --parsable --array=1-2 array.sh: sbatch: error: no cluster here"
+	if !errors.Is(err, ErrSubmit) || !strings.Contains(err.Error(), want) {
+		t.Errorf("error %v, want ErrSubmit quoting %q", err, want)
+	}
 }
