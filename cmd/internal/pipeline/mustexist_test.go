@@ -223,3 +223,26 @@ func TestMustExistRasterFolder(t *testing.T) {
 		}
 	}
 }
+
+// TestMustExistSubdatasetOrURL: a GDAL subdataset name is named as such
+// with the gdal_translate that extracts it, an HDF5 one too although it
+// holds "://" (HDF5:"x.h5"://grid, as gdalinfo lists it: it was named
+// "a GDAL virtual path or a URL" with advice to download the file); a
+// URL and a /vsi path are still named as such.
+func TestMustExistSubdatasetOrURL(t *testing.T) {
+	dir := t.TempDir()
+	h5 := filepath.Join(dir, "clim.h5")
+	cases := []struct{ path, want, not string }{
+		{`HDF5:"` + h5 + `"://bio1`, "is a GDAL subdataset name, not a file", "download or unzip"},
+		{"HDF5:" + h5 + "://group/bio1", "is a GDAL subdataset name, not a file", "download or unzip"},
+		{`NETCDF:"` + h5 + `":bio1`, "is a GDAL subdataset name, not a file", "download or unzip"},
+		{"https://example.org/model.tif", "is a GDAL virtual path or a URL", "gdal_translate"},
+		{"/vsizip/" + dir + "/m.zip/m.tif", "is a GDAL virtual path or a URL", "gdal_translate"},
+	}
+	for _, c := range cases {
+		err := mustExist("model m", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), c.not) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+}

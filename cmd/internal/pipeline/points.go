@@ -365,7 +365,9 @@ func tildeFlag(what string) string {
 }
 
 func mustExist(what, path string) error {
-	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+	// HDF5:"x.h5"://grid holds "://" too: it is named as the subdataset
+	// it is, with the gdal_translate that extracts it, not as a URL.
+	if (strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://")) && !gdalSubdataset.MatchString(path) {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 			"download or unzip the file and give its path", what, path))
 	}
