@@ -297,6 +297,33 @@ func crsAdvice(crs string) string {
 	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
 }
 
+// authorityCode matches a CRS written as an authority code at the start
+// of a text (EPSG:3035, ESRI:54009, IAU_2015:49900, OGC:CRS84, or a
+// compound EPSG:4326+5773), and what follows it. EPSG's codes are
+// numbers, so the letters of EPSG:4326xyz follow the code.
+var authorityCode = regexp.MustCompile(`^((?i:EPSG):[0-9]+(?:\+[0-9]+)?|[A-Za-z][A-Za-z0-9_]*:[A-Za-z0-9_.]+(?:\+[A-Za-z0-9_.]+)?)(.*)$`)
+
+// crsTrailingText refuses an --occurrences-crs written as an authority
+// code followed by more text ("EPSG:4326,EPSG:3857", "EPSG:32633 UTM
+// 33N", "EPSG:3035;"): GDAL reads the number at the start of the code
+// and ignores the rest without a word, so a second code, or a typo after
+// the first digits, would place the points in a CRS nobody chose. A URN
+// (urn:ogc:def:crs:EPSG::4326), a URL and GDAL's AUTO:ID,UNIT,LON,LAT
+// are left to GDAL, which reads them whole.
+func crsTrailingText(crs string) error {
+	text := strings.TrimSpace(crs)
+	m := authorityCode.FindStringSubmatch(text)
+	if m == nil || m[2] == "" {
+		return nil
+	}
+	switch auth, _, _ := strings.Cut(strings.ToUpper(text), ":"); auth {
+	case "URN", "HTTP", "HTTPS", "AUTO", "AUTO2":
+		return nil
+	}
+	return fmt.Errorf("--occurrences-crs %q has text after the CRS code %s (%q), which GDAL would ignore: give one CRS, e.g. --occurrences-crs %s",
+		crs, m[1], m[2], m[1])
+}
+
 // namedItem finds a second NAME=PATH item inside a path: a list written
 // with commas in one --model, --null or --extra flag.
 var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
