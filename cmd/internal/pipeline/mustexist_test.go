@@ -124,7 +124,9 @@ func TestMustExistBackslashes(t *testing.T) {
 // than one taxon (a portal's export of a genus) is warned about, the
 // taxa listed by their number of lines (counted by hand from recs), as
 // every line is scored as one species; one taxon, or no species column,
-// gives no warning.
+// gives no warning. A name with a line break (a quoted cell over two
+// lines) is quoted with it escaped: it used to split the warning over two
+// lines of the terminal and run.log.
 func TestTaxaWarning(t *testing.T) {
 	recs := func(names ...string) []inputs.Record {
 		var r []inputs.Record
@@ -140,6 +142,7 @@ func TestTaxaWarning(t *testing.T) {
 		{[]string{"Vornia palustris", "Vornia alia", "Vornia palustris", ""}, "names 2 taxa (Vornia palustris on 2 lines, Vornia alia on 1 line); areasweep scores every line of the table as one species"},
 		{[]string{"a", "b", "c", "d", "e", "f", "g", "g"}, "names 7 taxa (g on 2 lines, a on 1 line, b on 1 line, c on 1 line, d on 1 line, and 2 more)"},
 		{[]string{"Vornia m\xfcller", "Vornia alia", "Vornia alia"}, "(Vornia alia on 2 lines, Vornia m\uFFFDller on 1 line)"},
+		{[]string{"Vornia\npalustris", "Vornia alia", "Vornia\npalustris", "Vornia\talia"}, `("Vornia\npalustris" on 2 lines, "Vornia\talia" on 1 line, Vornia alia on 1 line)`},
 		{[]string{"Vornia palustris", "Vornia palustris", ""}, ""},
 		{[]string{"", ""}, ""},
 	}

@@ -16,6 +16,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
@@ -590,6 +591,12 @@ func taxaWarning(path string, recs []inputs.Record) string {
 				cut--
 			}
 			name = name[:cut] + "..."
+		}
+		// A name holding a line break or another control character (a
+		// quoted cell over two lines) is quoted with it escaped, so that
+		// the warning stays one line on the terminal and in run.log.
+		if strings.IndexFunc(name, unicode.IsControl) >= 0 {
+			name = strconv.Quote(name)
 		}
 		list = append(list, fmt.Sprintf("%s on %d %s", name, count[n], lines))
 	}
