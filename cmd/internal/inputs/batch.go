@@ -166,7 +166,7 @@ func LoadBatch(path string) (*Batch, error) {
 		return nil, fmt.Errorf("inputs: cannot read study table %s: %w", path, err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
+	data, err := io.ReadAll(newLimitedReader(f, MaxStudyBytes*16, 0))
 	if err != nil {
 		if errors.Is(err, ErrTooLarge) {
 			return nil, BatchErrors{{File: path, Err: err}}

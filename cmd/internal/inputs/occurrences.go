@@ -269,7 +269,7 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
-	lim := newLimitedReader(crLines(r), name, MaxOccurrenceBytes, MaxLineBytes)
+	lim := newLimitedReader(crLines(r), MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(4); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)
@@ -297,6 +297,10 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	var declared rune // Excel's "sep=;" line before the header
 	for {
 		line, err := br.ReadBytes('\n')
+		if err != nil && err != io.EOF {
+			// A line over the limit: its first MiB is no header.
+			return nil, tooLarge(err, perr, name)
+		}
 		if t := bytes.TrimRight(line, "\r\n"); declared == 0 && len(pre) == 0 && len(t) == 5 && bytes.HasPrefix(t, []byte("sep=")) && bytes.IndexByte([]byte(",;\t"), t[4]) >= 0 {
 			// Excel writes (and reads) "sep=;" as a first line naming
 			// the delimiter; it is no header. Kept as a blank line, so
@@ -311,9 +315,6 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		}
 		if err == io.EOF {
 			break
-		}
-		if err != nil {
-			return nil, tooLarge(err, perr, name)
 		}
 	}
 	if header == nil {
@@ -614,10 +615,10 @@ func binaryKind(head []byte) string {
 }
 
 // tooLarge turns a size-limit error from the reader into a ParseError
-// naming the file, and wraps other read errors.
+// naming the file (and the line too long), and wraps other read errors.
 func tooLarge(err error, perr func(int, string, error) error, name string) error {
 	if errors.Is(err, ErrTooLarge) {
-		return perr(0, "", err)
+		return perr(tooLongLine(err), "", err)
 	}
 	return fmt.Errorf("inputs: reading %s: %w", name, err)
 }
