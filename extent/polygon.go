@@ -10,6 +10,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
@@ -609,7 +610,26 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 	if !v.IsSet() || strings.TrimSpace(id) == "" {
 		return "", fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
 	}
+	if i := strings.IndexFunc(id, unicode.IsControl); i >= 0 {
+		// A line break or another control character (a text pasted from
+		// several lines) went raw into report.html, methods.md and the
+		// log, where an id is one line of text.
+		r, _ := utf8.DecodeRuneInString(id[i:])
+		return "", fmt.Errorf("extent: %s feature %d has the id %q in field %q, which holds a control character (%U, %s); ids name the units in the report, one line each: remove it from the id in a GIS",
+			path, fid, id, field, r, controlName(r))
+	}
 	return id, nil
+}
+
+// controlName names a control character in words.
+func controlName(r rune) string {
+	switch r {
+	case '\n', '\r':
+		return "a line break"
+	case '\t':
+		return "a tab"
+	}
+	return "not text"
 }
 
 // fieldTypeName names a field type that cannot name a unit.
