@@ -1,8 +1,10 @@
 package extent
 
 import (
+	"encoding/binary"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -168,6 +170,9 @@ func (s *polygonSource) close() {
 // field is resolved and checked for empty ids, and invalid features are
 // repaired (GDAL's MakeValid), each with a warning.
 func openPolygons(path, field string) (*polygonSource, []string, error) {
+	if err := shapefileCutShort(path); err != nil {
+		return nil, nil, err
+	}
 	ds, err := godal.Open(path, godal.VectorOnly(), godal.ErrLogger(func(ec godal.ErrorCategory, code int, msg string) error {
 		switch {
 		case ec < godal.CE_Warning:
@@ -791,6 +796,81 @@ func unitName(path, id string) string {
 		return path
 	}
 	return fmt.Sprintf("%s unit %q", path, id)
+}
+
+// shapefileCutShort refuses a shapefile whose .shp or .dbf ends before
+// the records its index or header place in it (cut off while being
+// copied or written): GDAL read the features of a .shp cut short as
+// features without geometry (skipped with a warning), and stopped at the
+// last whole record of a .dbf cut short, the features after it dropped
+// without a word, logging only "fread failed on DBF file". nil for any
+// other path, or when a file is missing or its header unreadable (the
+// open that follows says why).
+func shapefileCutShort(path string) error {
+	ext := filepath.Ext(path)
+	if !strings.EqualFold(ext, ".shp") {
+		return nil
+	}
+	stem := strings.TrimSuffix(path, ext)
+	cut := func(file string, size, want int64) error {
+		return fmt.Errorf("extent: %s is cut short: its %s holds %d bytes where its records need %d (the file was cut off while being copied or written, and the features past its end would be lost); copy the whole shapefile again (.shp, .shx, .dbf, .prj), or export it again as a GeoPackage",
+			path, filepath.Base(file), size, want)
+	}
+	// The .shx holds, after a header of 100 bytes, each record's offset
+	// in the .shp and its content's length, in 16-bit words and
+	// big-endian, the record's own header of 8 bytes not counted (ESRI
+	// Shapefile Technical Description, 1998).
+	if shx := sidecarPath(stem, ext, ".shx"); shx != "" {
+		if idx, err := os.ReadFile(shx); err == nil && len(idx) >= 100 {
+			// Its header holds its own length in 16-bit words too (bytes
+			// 24-27), from which GDAL counts the records.
+			if want := 2 * int64(binary.BigEndian.Uint32(idx[24:28])); int64(len(idx)) < want {
+				return cut(shx, int64(len(idx)), want)
+			}
+			var want int64
+			for r := idx[100:]; len(r) >= 8; r = r[8:] {
+				want = max(want, 2*(int64(binary.BigEndian.Uint32(r[0:4]))+int64(binary.BigEndian.Uint32(r[4:8])))+8)
+			}
+			if st, err := os.Stat(path); err == nil && st.Size() < want {
+				return cut(path, st.Size(), want)
+			}
+		}
+	}
+	// A .dbf's header holds its number of records (bytes 4-7), its own
+	// length (8-9) and a record's (10-11), little-endian (dBase III).
+	if dbf := sidecarPath(stem, ext, ".dbf"); dbf != "" {
+		f, err := os.Open(dbf)
+		if err != nil {
+			return nil
+		}
+		defer f.Close()
+		h := make([]byte, 12)
+		st, serr := f.Stat()
+		if _, err := io.ReadFull(f, h); err != nil || serr != nil {
+			return nil
+		}
+		want := int64(binary.LittleEndian.Uint16(h[8:10])) + int64(binary.LittleEndian.Uint32(h[4:8]))*int64(binary.LittleEndian.Uint16(h[10:12]))
+		if st.Size() < want {
+			return cut(dbf, st.Size(), want)
+		}
+	}
+	return nil
+}
+
+// sidecarPath returns the file of a shapefile at stem+ext with the
+// extension want, in the case of ext (.shx beside .shp, .SHX beside
+// .SHP) or else the other, or "" when there is none.
+func sidecarPath(stem, ext, want string) string {
+	first, second := strings.ToLower(want), strings.ToUpper(want)
+	if ext == strings.ToUpper(ext) {
+		first, second = second, first
+	}
+	for _, e := range []string{first, second} {
+		if st, err := os.Stat(stem + e); err == nil && st.Mode().IsRegular() {
+			return stem + e
+		}
+	}
+	return ""
 }
 
 // missingDBF returns the name of the .dbf file a shapefile at path
