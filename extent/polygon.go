@@ -405,7 +405,8 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		}
 	}
 	s.layer.ResetReading()
-	for fid := 1; ; fid++ {
+	fid := 1
+	for ; ; fid++ {
 		f := s.layer.NextFeature()
 		if f == nil {
 			break
@@ -423,6 +424,10 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 			order = append(order, id)
 		}
 		partsByID[id] = append(partsByID[id], unionPart{own, fid, fid})
+	}
+	if err := s.allRead(fid - 1); err != nil {
+		closeAll()
+		return nil, nil, err
 	}
 	byID := make(map[string]*godal.Geometry, len(order))
 	for i, id := range order {
@@ -457,6 +462,27 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil
+}
+
+// allRead refuses a layer of which fewer features were read than it
+// holds: GDAL ends the reading at a part of the file it cannot read (a
+// damaged page of a GeoPackage, a .dbf cut short) as at the layer's end,
+// logging only a library error, and the features after it were left out
+// of the region or the units without a word (22 of 40 of a GeoPackage
+// with one damaged page). GDAL counts a layer's features by reading
+// them when it must, and gives -1 when it cannot: the file is damaged
+// then too.
+func (s *polygonSource) allRead(read int) error {
+	n, err := s.layer.FeatureCount()
+	if err != nil || (n >= 0 && n <= read) {
+		return nil
+	}
+	which := fmt.Sprintf("the first %d of its %d features", read, n)
+	if n < 0 {
+		which = fmt.Sprintf("its first %d features (GDAL cannot count them all)", read)
+	}
+	return fmt.Errorf("extent: %s layer %q is damaged: only %s could be read, the rest lying past a part of the file that cannot be read (as in a file cut short or copied while it was being written); check that it opens whole in a GIS, or export it again",
+		s.path, s.layer.Name(), which)
 }
 
 // unionPart is a geometry of one id with the numbers of the first and
@@ -1071,7 +1097,9 @@ func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field strin
 	}
 	defer f.Close()
 	v, ok := f.Fields()["n"]
-	if !ok || v.Int() == 0 {
+	if !ok || v.Int() <= 0 {
+		// A count below 0 comes from a file GDAL cannot read whole (a
+		// damaged GeoPackage): the reading of its features says so.
 		return nil
 	}
 	which := ""
