@@ -1,6 +1,8 @@
 package pipeline
 
 import (
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -46,6 +48,28 @@ func TestCRSTrailingText(t *testing.T) {
 			t.Errorf("%q refused: %v", c.crs, err)
 		case c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "give one CRS")):
 			t.Errorf("%q: %v, want it refused with %s", c.crs, err, c.want)
+		}
+	}
+}
+
+// TestConvertedName: the advice for a raster without CRS in another
+// format than GeoTIFF (an ASCII grid without .prj) names STEM.tif as the
+// copy to write, or STEM_crs.tif when STEM.tif exists: it named
+// grid.tif beside grid.asc although that file was there, and
+// gdal_translate would have overwritten it.
+func TestConvertedName(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "taken.tif"), []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ in, want string }{
+		{"free.asc", "free.tif"},
+		{"taken.asc", "taken_crs.tif"},
+		{"taken.bil", "taken_crs.tif"},
+		{"noext", "noext.tif"},
+	} {
+		if got := convertedName(filepath.Join(dir, c.in)); got != filepath.Join(dir, c.want) {
+			t.Errorf("%s: %s, want %s", c.in, got, c.want)
 		}
 	}
 }

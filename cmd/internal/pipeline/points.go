@@ -115,7 +115,7 @@ func (s *Study) openGrid() error {
 			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
 				// gdal_edit.py records the CRS of other formats in an
 				// .aux.xml file, which areasweep does not read.
-				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + shellArg(m.Path) + " " + shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+".tif")
+				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + shellArg(m.Path) + " " + shellArg(convertedName(m.Path))
 				if ext == ".asc" {
 					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
 				}
@@ -296,6 +296,18 @@ func crsAdvice(crs string) string {
 		return fmt.Sprintf("an EPSG code is written with its authority: EPSG:%s", strings.TrimSpace(crs))
 	}
 	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
+}
+
+// convertedName returns the GeoTIFF a conversion of the raster at path
+// is advised to write: STEM.tif, or STEM_crs.tif when STEM.tif exists
+// (as the GeoTIFF an ASCII grid was exported from often does), so that
+// the advice never overwrites a file of the user's.
+func convertedName(path string) string {
+	stem := strings.TrimSuffix(path, filepath.Ext(path))
+	if _, err := os.Lstat(stem + ".tif"); err == nil {
+		return stem + "_crs.tif"
+	}
+	return stem + ".tif"
 }
 
 // authorityCode matches a CRS written as an authority code at the start
