@@ -3,6 +3,7 @@ package pipeline
 import (
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -246,6 +247,26 @@ func TestMustExistSubdatasetOrURL(t *testing.T) {
 		err := mustExist("model m", c.path)
 		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), c.not) {
 			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+}
+
+// TestMustExistLineBreak: an input whose path holds a line break is
+// refused with the path quoted: a refusal of its contents named it over
+// two lines of the terminal ("areasweep: /d/bad\nocc.csv line 3, ..."),
+// and run.log's lines broke there too.
+func TestMustExistLineBreak(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"occ\nx.csv", "occ\rx.csv"} {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte("lon,lat,role\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		for _, what := range []string{"occurrences", "model m", "region"} {
+			err := mustExist(what, p)
+			if err == nil || !fault.IsBadInput(err) || strings.ContainsAny(err.Error(), "\n\r") || !strings.Contains(err.Error(), "holds a line break") || !strings.Contains(err.Error(), strconv.Quote(p)) {
+				t.Errorf("%s %q: %v", what, p, err)
+			}
 		}
 	}
 }

@@ -405,6 +405,11 @@ func tildeFlag(what string) string {
 }
 
 func mustExist(what, path string) error {
+	if strings.ContainsAny(path, "\n\r") {
+		// Every message naming the file, and run.log, would break
+		// there; --out refuses a line break too.
+		return fault.BadInput(fmt.Errorf("%s: the path %q holds a line break, which no message could show on one line; rename the file (or its folder)", what, path))
+	}
 	// HDF5:"x.h5"://grid holds "://" too: it is named as the subdataset
 	// it is, with the gdal_translate that extracts it, not as a URL.
 	if (strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://")) && !gdalSubdataset.MatchString(path) {
