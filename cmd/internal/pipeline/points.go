@@ -44,6 +44,9 @@ func (s *Study) checkFiles() error {
 		if err := checkHDF5("model "+name, path, true); err != nil {
 			return err
 		}
+		if err := checkASCIIGrid("model "+name, path); err != nil {
+			return err
+		}
 		s.models = append(s.models, namedPath{Name: name, Path: path})
 	}
 	for _, m := range o.Nulls {
@@ -52,6 +55,9 @@ func (s *Study) checkFiles() error {
 			return err
 		}
 		if err := checkHDF5("null "+name, path, true); err != nil {
+			return err
+		}
+		if err := checkASCIIGrid("null "+name, path); err != nil {
 			return err
 		}
 		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
