@@ -43,6 +43,12 @@ func asciiGridProblem(path string) (string, error) {
 	}
 	defer f.Close()
 	br := bufio.NewReaderSize(f, 1<<20)
+	// Only a file that starts as a grid's header is read by lines: a
+	// GeoTIFF of zeros may hold no line feed in gigabytes.
+	head, _ := br.Peek(64)
+	if w := strings.Fields(strings.ToLower(string(head))); len(w) == 0 || !asciiHeaderKeys[w[0]] {
+		return "", nil
+	}
 	var ncols, nrows int64
 	line := 0
 	var first []string // the first line of values, read with the header

@@ -36,6 +36,7 @@ func TestASCIIGridCells(t *testing.T) {
 		{"cut short", head + "1 2 3\n4 -", "holds 5 values where its header's ncols 3 × nrows 2 make 6 (line 8 holds 2): the file was cut short"},
 		{"no grid: text", "lon,lat,role\n1,2,train\n", ""},
 		{"no grid: header without ncols", "nrows 2\ncellsize 1\n1 2 3\n", ""},
+		{"no grid: binary without line feeds", "II*\x00" + strings.Repeat("\x00", 1<<21), ""},
 	}
 	dir := t.TempDir()
 	for i, c := range cases {
