@@ -872,7 +872,9 @@ func contains(list []string, s string) bool {
 // columns, the header's own names (case aside).
 func repeatsHeader(row []string, c columns) bool {
 	for _, col := range []column{c.lon, c.lat, c.role} {
-		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(row[col.index]), col.name) {
+		// The second table's byte-order mark (cat of two files saved
+		// as UTF-8 with one) starts its header's first cell.
+		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(strings.TrimPrefix(row[col.index], "\ufeff")), col.name) {
 			return false
 		}
 	}
