@@ -471,8 +471,13 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 // of the region or the units without a word (22 of 40 of a GeoPackage
 // with one damaged page). GDAL counts a layer's features by reading
 // them when it must, and gives -1 when it cannot: the file is damaged
-// then too.
+// then too. Only a GeoPackage's count is compared: a shapefile's counts
+// the records its .dbf marks deleted (as an edit leaves them), which the
+// reading skips, and its files cut short are found by shapefileCutShort.
 func (s *polygonSource) allRead(read int) error {
+	if s.ds.Driver().ShortName() != "GPKG" {
+		return nil
+	}
 	n, err := s.layer.FeatureCount()
 	if err != nil || (n >= 0 && n <= read) {
 		return nil
