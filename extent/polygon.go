@@ -1,8 +1,10 @@
 package extent
 
 import (
+	"encoding/binary"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -10,6 +12,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
@@ -167,6 +170,9 @@ func (s *polygonSource) close() {
 // field is resolved and checked for empty ids, and invalid features are
 // repaired (GDAL's MakeValid), each with a warning.
 func openPolygons(path, field string) (*polygonSource, []string, error) {
+	if err := shapefileCutShort(path); err != nil {
+		return nil, nil, err
+	}
 	ds, err := godal.Open(path, godal.VectorOnly(), godal.ErrLogger(func(ec godal.ErrorCategory, code int, msg string) error {
 		switch {
 		case ec < godal.CE_Warning:
@@ -399,7 +405,8 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		}
 	}
 	s.layer.ResetReading()
-	for fid := 1; ; fid++ {
+	fid := 1
+	for ; ; fid++ {
 		f := s.layer.NextFeature()
 		if f == nil {
 			break
@@ -417,6 +424,10 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 			order = append(order, id)
 		}
 		partsByID[id] = append(partsByID[id], unionPart{own, fid, fid})
+	}
+	if err := s.allRead(fid - 1); err != nil {
+		closeAll()
+		return nil, nil, err
 	}
 	byID := make(map[string]*godal.Geometry, len(order))
 	for i, id := range order {
@@ -451,6 +462,32 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil
+}
+
+// allRead refuses a layer of which fewer features were read than it
+// holds: GDAL ends the reading at a part of the file it cannot read (a
+// damaged page of a GeoPackage, a .dbf cut short) as at the layer's end,
+// logging only a library error, and the features after it were left out
+// of the region or the units without a word (22 of 40 of a GeoPackage
+// with one damaged page). GDAL counts a layer's features by reading
+// them when it must, and gives -1 when it cannot: the file is damaged
+// then too. Only a GeoPackage's count is compared: a shapefile's counts
+// the records its .dbf marks deleted (as an edit leaves them), which the
+// reading skips, and its files cut short are found by shapefileCutShort.
+func (s *polygonSource) allRead(read int) error {
+	if s.ds.Driver().ShortName() != "GPKG" {
+		return nil
+	}
+	n, err := s.layer.FeatureCount()
+	if err != nil || (n >= 0 && n <= read) {
+		return nil
+	}
+	which := fmt.Sprintf("the first %d of its %d features", read, n)
+	if n < 0 {
+		which = fmt.Sprintf("its first %d features (GDAL cannot count them all)", read)
+	}
+	return fmt.Errorf("extent: %s layer %q is damaged: only %s could be read, the rest lying past a part of the file that cannot be read (as in a file cut short or copied while it was being written); check that it opens whole in a GIS, or export it again",
+		s.path, s.layer.Name(), which)
 }
 
 // unionPart is a geometry of one id with the numbers of the first and
@@ -609,7 +646,26 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 	if !v.IsSet() || strings.TrimSpace(id) == "" {
 		return "", fmt.Errorf("extent: %s feature %d has no value in field %q; give every unit an id, or delete the feature", path, fid, field)
 	}
+	if i := strings.IndexFunc(id, unicode.IsControl); i >= 0 {
+		// A line break or another control character (a text pasted from
+		// several lines) went raw into report.html, methods.md and the
+		// log, where an id is one line of text.
+		r, _ := utf8.DecodeRuneInString(id[i:])
+		return "", fmt.Errorf("extent: %s feature %d has the id %q in field %q, which holds a control character (%U, %s); ids name the units in the report, one line each: remove it from the id in a GIS",
+			path, fid, id, field, r, controlName(r))
+	}
 	return id, nil
+}
+
+// controlName names a control character in words.
+func controlName(r rune) string {
+	switch r {
+	case '\n', '\r':
+		return "a line break"
+	case '\t':
+		return "a tab"
+	}
+	return "not text"
 }
 
 // fieldTypeName names a field type that cannot name a unit.
@@ -771,6 +827,81 @@ func unitName(path, id string) string {
 		return path
 	}
 	return fmt.Sprintf("%s unit %q", path, id)
+}
+
+// shapefileCutShort refuses a shapefile whose .shp or .dbf ends before
+// the records its index or header place in it (cut off while being
+// copied or written): GDAL read the features of a .shp cut short as
+// features without geometry (skipped with a warning), and stopped at the
+// last whole record of a .dbf cut short, the features after it dropped
+// without a word, logging only "fread failed on DBF file". nil for any
+// other path, or when a file is missing or its header unreadable (the
+// open that follows says why).
+func shapefileCutShort(path string) error {
+	ext := filepath.Ext(path)
+	if !strings.EqualFold(ext, ".shp") {
+		return nil
+	}
+	stem := strings.TrimSuffix(path, ext)
+	cut := func(file string, size, want int64) error {
+		return fmt.Errorf("extent: %s is cut short: its %s holds %d bytes where its records need %d (the file was cut off while being copied or written, and the features past its end would be lost); copy the whole shapefile again (.shp, .shx, .dbf, .prj), or export it again as a GeoPackage",
+			path, filepath.Base(file), size, want)
+	}
+	// The .shx holds, after a header of 100 bytes, each record's offset
+	// in the .shp and its content's length, in 16-bit words and
+	// big-endian, the record's own header of 8 bytes not counted (ESRI
+	// Shapefile Technical Description, 1998).
+	if shx := sidecarPath(stem, ext, ".shx"); shx != "" {
+		if idx, err := os.ReadFile(shx); err == nil && len(idx) >= 100 {
+			// Its header holds its own length in 16-bit words too (bytes
+			// 24-27), from which GDAL counts the records.
+			if want := 2 * int64(binary.BigEndian.Uint32(idx[24:28])); int64(len(idx)) < want {
+				return cut(shx, int64(len(idx)), want)
+			}
+			var want int64
+			for r := idx[100:]; len(r) >= 8; r = r[8:] {
+				want = max(want, 2*(int64(binary.BigEndian.Uint32(r[0:4]))+int64(binary.BigEndian.Uint32(r[4:8])))+8)
+			}
+			if st, err := os.Stat(path); err == nil && st.Size() < want {
+				return cut(path, st.Size(), want)
+			}
+		}
+	}
+	// A .dbf's header holds its number of records (bytes 4-7), its own
+	// length (8-9) and a record's (10-11), little-endian (dBase III).
+	if dbf := sidecarPath(stem, ext, ".dbf"); dbf != "" {
+		f, err := os.Open(dbf)
+		if err != nil {
+			return nil
+		}
+		defer f.Close()
+		h := make([]byte, 12)
+		st, serr := f.Stat()
+		if _, err := io.ReadFull(f, h); err != nil || serr != nil {
+			return nil
+		}
+		want := int64(binary.LittleEndian.Uint16(h[8:10])) + int64(binary.LittleEndian.Uint32(h[4:8]))*int64(binary.LittleEndian.Uint16(h[10:12]))
+		if st.Size() < want {
+			return cut(dbf, st.Size(), want)
+		}
+	}
+	return nil
+}
+
+// sidecarPath returns the file of a shapefile at stem+ext with the
+// extension want, in the case of ext (.shx beside .shp, .SHX beside
+// .SHP) or else the other, or "" when there is none.
+func sidecarPath(stem, ext, want string) string {
+	first, second := strings.ToLower(want), strings.ToUpper(want)
+	if ext == strings.ToUpper(ext) {
+		first, second = second, first
+	}
+	for _, e := range []string{first, second} {
+		if st, err := os.Stat(stem + e); err == nil && st.Mode().IsRegular() {
+			return stem + e
+		}
+	}
+	return ""
 }
 
 // missingDBF returns the name of the .dbf file a shapefile at path
@@ -971,7 +1102,9 @@ func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field strin
 	}
 	defer f.Close()
 	v, ok := f.Fields()["n"]
-	if !ok || v.Int() == 0 {
+	if !ok || v.Int() <= 0 {
+		// A count below 0 comes from a file GDAL cannot read whole (a
+		// damaged GeoPackage): the reading of its features says so.
 		return nil
 	}
 	which := ""

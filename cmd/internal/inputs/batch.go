@@ -166,7 +166,7 @@ func LoadBatch(path string) (*Batch, error) {
 		return nil, fmt.Errorf("inputs: cannot read study table %s: %w", path, err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes*16, 0))
+	data, err := io.ReadAll(newLimitedReader(f, MaxStudyBytes*16, 0))
 	if err != nil {
 		if errors.Is(err, ErrTooLarge) {
 			return nil, BatchErrors{{File: path, Err: err}}
@@ -388,7 +388,7 @@ func (p *batchParser) parseYAML(data []byte) {
 			p.add(item.Line, "", "", fmt.Errorf("%w: each study is a mapping with id: and study keys, found %s", ErrBatchSyntax, kindName(item)))
 			continue
 		}
-		id, idLine, idSeen, idTwice := "", item.Line, false, 0
+		id, idLine, idSeen, idTwice, idKind := "", item.Line, false, 0, ""
 		for i := 0; i+1 < len(item.Content); i += 2 {
 			if k := deref(item.Content[i]); k.Kind == yaml.ScalarNode && k.Value == "id" {
 				if idSeen {
@@ -400,6 +400,8 @@ func (p *batchParser) parseYAML(data []byte) {
 				idLine = k.Line
 				if v.Kind == yaml.ScalarNode {
 					id = v.Value
+				} else {
+					idKind = kindName(v) // a list or mapping: named as such, not as an empty id
 				}
 			}
 		}
@@ -413,6 +415,10 @@ func (p *batchParser) parseYAML(data []byte) {
 		st := &Study{}
 		p.row = map[string]bool{}
 		before := len(p.errs)
+		if idKind != "" {
+			p.add(idLine, "id", "", fmt.Errorf("%w: the id must be one word, found %s; write for example id: oak", ErrBatchID, idKind))
+			p.row["id"] = true
+		}
 		p.mapping(st, item, id, "id")
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: idLine, Study: st})
 		p.failed = append(p.failed, p.row)
@@ -657,6 +663,8 @@ func (p *batchParser) finish() {
 		s := &p.b.Studies[i]
 		before := len(p.errs)
 		switch {
+		case s.ID == "" && i < len(p.failed) && p.failed[i]["id"]:
+			// Its id was refused as it was read.
 		case s.ID == "":
 			p.add(s.Line, "id", "", fmt.Errorf("%w: the id is empty; give every study an id (letters, digits, '_', '-', '.')", ErrBatchID))
 		case !batchIDRE.MatchString(s.ID):

@@ -268,6 +268,9 @@ func TestBatchRefuses(t *testing.T) {
 		{"yaml unknown top", "studys: []\n", true, ErrBatchSyntax, `"studys"`},
 		{"yaml out", "settings:\n  out: x\nstudies:\n  - {id: a, model: m=x, occurrences: p, region: r}\n", true, ErrBatchColumn, "out is not allowed"},
 		{"yaml row scalar", "studies:\n  - oak\n", true, ErrBatchSyntax, "mapping with id"},
+		// An id that is a list or mapping was refused as "the id is empty".
+		{"yaml id list", "studies:\n  - {id: [oak], model: m=x, occurrences: p, region: r}\n", true, ErrBatchID, `t line 2, column "id": bad study id: the id must be one word, found a list; write for example id: oak`},
+		{"yaml id mapping", "studies:\n  - id: {oak: 1}\n    model: m=x\n    occurrences: p\n    region: r\n", true, ErrBatchID, "found a mapping (key: value pairs)"},
 		{"yaml bad key", "studies:\n  - {id: a, model: m=x, occurrences: p, region: r, iteration: 5}\n", true, ErrBatchColumn, `did you mean "iterations"`},
 		{"yaml dup key", "studies:\n  - id: a\n    model: m=x\n    models: m=y\n", true, ErrBatchColumn, "already given"},
 		{"yaml syntax", "studies: [\n", true, ErrBatchSyntax, "not valid YAML"},
@@ -286,6 +289,9 @@ func TestBatchRefuses(t *testing.T) {
 			_, err := ParseBatch([]byte(c.text), "t", "", c.yaml)
 			if !errors.Is(err, c.want) || !strings.Contains(err.Error(), c.words) {
 				t.Fatalf("got %v; want %v with %q", err, c.want, c.words)
+			}
+			if strings.Contains(c.name, "yaml id") && strings.Contains(err.Error(), "the id is empty") {
+				t.Errorf("the id is named empty too: %v", err)
 			}
 			if strings.Contains(err.Error(), "in study file") {
 				t.Errorf("a table's problem is called a study file's: %v", err)

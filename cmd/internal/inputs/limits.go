@@ -27,19 +27,43 @@ const (
 // than MaxLineBytes.
 var ErrTooLarge = errors.New("inputs: text input too large")
 
+// lineTooLong is the error of a line longer than its limit, with the
+// line's number, so that the message names the file and the line once
+// (the caller's error names the file).
+type lineTooLong struct {
+	line    int
+	maxLine int64
+}
+
+func (e *lineTooLong) Error() string {
+	return fmt.Sprintf("%v: the line is longer than %d KiB; is this the right file (a text table with one record per line)?", ErrTooLarge, e.maxLine>>10)
+}
+
+// Unwrap lets errors.Is find ErrTooLarge.
+func (e *lineTooLong) Unwrap() error { return ErrTooLarge }
+
+// tooLongLine returns the number of the line err says is too long, or 0.
+func tooLongLine(err error) int {
+	var l *lineTooLong
+	if errors.As(err, &l) {
+		return l.line
+	}
+	return 0
+}
+
 // limitedReader returns ErrTooLarge-wrapping errors once more than max
 // bytes in total, or more than maxLine bytes without a line break, have
-// been read. It counts lines so the error can name one.
+// been read. It counts lines so the error can name one. Its errors do
+// not name the file: the caller's error does.
 type limitedReader struct {
 	r             io.Reader
 	max, maxLine  int64
 	n, sinceBreak int64
 	line          int
-	what          string
 }
 
-func newLimitedReader(r io.Reader, what string, max, maxLine int64) *limitedReader {
-	return &limitedReader{r: r, max: max, maxLine: maxLine, line: 1, what: what}
+func newLimitedReader(r io.Reader, max, maxLine int64) *limitedReader {
+	return &limitedReader{r: r, max: max, maxLine: maxLine, line: 1}
 }
 
 func (l *limitedReader) Read(p []byte) (int, error) {
@@ -52,10 +76,10 @@ func (l *limitedReader) Read(p []byte) (int, error) {
 			l.sinceBreak = 0
 		}
 		if l.n > l.max {
-			return 0, fmt.Errorf("%w: %s is larger than %d MiB; is this the right file?", ErrTooLarge, l.what, l.max>>20)
+			return 0, fmt.Errorf("%w: the file is larger than %d MiB; is this the right file?", ErrTooLarge, l.max>>20)
 		}
 		if l.maxLine > 0 && l.sinceBreak > l.maxLine {
-			return 0, fmt.Errorf("%w: %s line %d is longer than %d KiB; is this the right file (a text table with one record per line)?", ErrTooLarge, l.what, l.line, l.maxLine>>10)
+			return 0, &lineTooLong{line: l.line, maxLine: l.maxLine}
 		}
 	}
 	return n, err

@@ -15,6 +15,10 @@ func TestRepeatedHeader(t *testing.T) {
 	for _, tc := range []struct{ name, in string }{
 		{"same spelling", "lon,lat,role\n1,2,train\n3,4,test\nlon,lat,role\n5,6,test\n"},
 		{"other case and spaces, semicolons", "Lon;Lat;Role\n1;2;train\n3;4;test\n LON ; lat ; ROLE \n5;6;test\n"},
+		// Two files saved as UTF-8 with a byte-order mark: the second's
+		// starts its header (it was named a longitude "\ufefflon" that
+		// is not a number).
+		{"second table's byte-order mark", "\ufefflon,lat,role\n1,2,train\n3,4,test\n\ufefflon,lat,role\n5,6,test\n"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := ParseOccurrences(strings.NewReader(tc.in), "occ.csv", true)

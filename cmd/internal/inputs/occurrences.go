@@ -66,7 +66,15 @@ var (
 	ErrNoTest = errors.New("inputs: no record has role test")
 	// ErrNoTrain: no record has role train.
 	ErrNoTrain = errors.New("inputs: no record has role train")
+	// ErrAbsence: records of the table's occurrence status column say
+	// the species was absent.
+	ErrAbsence = errors.New("inputs: records of absences")
 )
+
+// StatusNames are the headers of an occurrence status column (Darwin
+// Core's occurrenceStatus, as a GBIF download holds it), whose value
+// "absent" marks a record of an absence.
+var StatusNames = []string{"occurrencestatus", "occurrence_status"}
 
 // ParseError reports a problem in an input file: which file, which line,
 // which column (header field name) and, in the wrapped error, what is wrong
@@ -269,7 +277,7 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		return &ParseError{File: name, Line: line, Field: field, Err: err}
 	}
 
-	lim := newLimitedReader(crLines(r), name, MaxOccurrenceBytes, MaxLineBytes)
+	lim := newLimitedReader(crLines(r), MaxOccurrenceBytes, MaxLineBytes)
 	br := bufio.NewReader(lim)
 	if b, _ := br.Peek(4); bytes.HasPrefix(b, []byte{0xEF, 0xBB, 0xBF}) {
 		_, _ = br.Discard(3)
@@ -297,6 +305,10 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 	var declared rune // Excel's "sep=;" line before the header
 	for {
 		line, err := br.ReadBytes('\n')
+		if err != nil && err != io.EOF {
+			// A line over the limit: its first MiB is no header.
+			return nil, tooLarge(err, perr, name)
+		}
 		if t := bytes.TrimRight(line, "\r\n"); declared == 0 && len(pre) == 0 && len(t) == 5 && bytes.HasPrefix(t, []byte("sep=")) && bytes.IndexByte([]byte(",;\t"), t[4]) >= 0 {
 			// Excel writes (and reads) "sep=;" as a first line naming
 			// the delimiter; it is no header. Kept as a blank line, so
@@ -311,9 +323,6 @@ func parseOccurrences(r io.Reader, name string, geographic, plain bool) ([]Recor
 		}
 		if err == io.EOF {
 			break
-		}
-		if err != nil {
-			return nil, tooLarge(err, perr, name)
 		}
 	}
 	if header == nil {
@@ -407,6 +416,7 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 	}
 
 	var recs []Record
+	var absent []int // lines of records of absences
 	taxa := map[string]string{}
 	for {
 		row, line, err := readRow()
@@ -476,9 +486,17 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 				}
 			}
 		}
+		if i := cols.status.index; i >= 0 && i < len(row) && strings.EqualFold(strings.TrimSpace(row[i]), "absent") {
+			absent = append(absent, line)
+		}
 		recs = append(recs, rec)
 	}
 
+	if len(absent) > 0 {
+		return nil, perr(0, cols.status.name, fmt.Errorf("%w: %d record(s) say ABSENT in column %s (%s); "+
+			"areasweep scores presences only and would read each as a presence where the species was not found: delete those lines (keep the PRESENT ones)",
+			ErrAbsence, len(absent), cols.status.name, lineList(absent)))
+	}
 	if len(recs) == 0 {
 		return nil, perr(0, "", fmt.Errorf("%w: only a header was found (line %d); "+
 			"add one line per occurrence below the header", ErrNoRecords, hdrLine))
@@ -507,6 +525,23 @@ func readRecords(readRow func() ([]string, int, error), delim rune, perr func(in
 			"mark the occurrences used to calibrate the model with role train", ErrNoTrain, allRecords(nTest)))
 	}
 	return recs, nil
+}
+
+// lineList names the first ten of lines ("lines 5, 9 and 3 more",
+// "line 5").
+func lineList(lines []int) string {
+	if len(lines) == 1 {
+		return "line " + strconv.Itoa(lines[0])
+	}
+	n := min(len(lines), 10)
+	list := make([]string, n)
+	for i, l := range lines[:n] {
+		list[i] = strconv.Itoa(l)
+	}
+	if len(lines) > n {
+		return fmt.Sprintf("lines %s and %d more", strings.Join(list, ", "), len(lines)-n)
+	}
+	return "lines " + strings.Join(list, ", ")
 }
 
 // missingValue reports whether a coordinate cell holds no value: empty,
@@ -614,10 +649,10 @@ func binaryKind(head []byte) string {
 }
 
 // tooLarge turns a size-limit error from the reader into a ParseError
-// naming the file, and wraps other read errors.
+// naming the file (and the line too long), and wraps other read errors.
 func tooLarge(err error, perr func(int, string, error) error, name string) error {
 	if errors.Is(err, ErrTooLarge) {
-		return perr(0, "", err)
+		return perr(tooLongLine(err), "", err)
 	}
 	return fmt.Errorf("inputs: reading %s: %w", name, err)
 }
@@ -691,7 +726,7 @@ type column struct {
 	name  string // header spelling as written (trimmed)
 }
 
-type columns struct{ lon, lat, role, taxon column }
+type columns struct{ lon, lat, role, taxon, status column }
 
 // otherDelimiter refuses a line read as one cell, under a header of
 // several, that holds another delimiter than the header's at least
@@ -755,7 +790,7 @@ func delimiterName(d rune) string {
 
 // findColumns locates the longitude, latitude and role columns.
 func findColumns(hdr []string, delim rune) (columns, error) {
-	c := columns{taxon: column{index: -1}}
+	c := columns{taxon: column{index: -1}, status: column{index: -1}}
 	found := [3]bool{}
 	targets := []struct {
 		names []string
@@ -782,6 +817,11 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 			if c.taxon.index < 0 && strings.ToLower(strings.TrimSpace(h)) == want {
 				c.taxon = column{index: i, name: strings.TrimSpace(h)}
 			}
+		}
+	}
+	for i, h := range hdr {
+		if c.status.index < 0 && contains(StatusNames, strings.ToLower(strings.TrimSpace(h))) {
+			c.status = column{index: i, name: strings.TrimSpace(h)}
 		}
 	}
 	// At most 12 fields are quoted (a GBIF download has some 250), each
@@ -832,7 +872,9 @@ func contains(list []string, s string) bool {
 // columns, the header's own names (case aside).
 func repeatsHeader(row []string, c columns) bool {
 	for _, col := range []column{c.lon, c.lat, c.role} {
-		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(row[col.index]), col.name) {
+		// The second table's byte-order mark (cat of two files saved
+		// as UTF-8 with one) starts its header's first cell.
+		if col.index >= len(row) || !strings.EqualFold(strings.TrimSpace(strings.TrimPrefix(row[col.index], "\ufeff")), col.name) {
 			return false
 		}
 	}

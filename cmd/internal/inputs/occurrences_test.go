@@ -57,6 +57,7 @@ func okCases() []okCase {
 			want: []Record{{Line: 2, X: 1.5, Y: 2.5, Role: vocab.RoleTrain}, {Line: 4, X: -3, Y: 4, Role: vocab.RoleTest}}},
 		{name: "no final newline", in: "lon,lat,role\n1.5,2.5,train\n-3,4,test", geographic: true, want: twoRecs},
 		{name: "spaces after commas", in: "lon, lat, role\n1.5, 2.5, train\n-3, 4, test\n", geographic: true, want: twoRecs},
+		{name: "occurrence status present, or empty", in: "lon,lat,role,occurrenceStatus\n1.5,2.5,train,PRESENT\n-3,4,test,\n", geographic: true, want: twoRecs},
 		// A line longer than the header is still read when the role comes
 		// after both coordinates (a shift before the role makes it
 		// unreadable), or when its extra cells are blank.
@@ -235,6 +236,14 @@ func errCases() []errCase {
 		{name: "swapped GBIF names", in: "decimalLongitude\tdecimalLatitude\trole\n-12\t-77\ttrain\n-13\t-76,5\ttest\n-10\t-150\ttest\n", geographic: true, is: ErrSwapped, line: 4, field: "decimalLatitude",
 			contains: []string{`"decimalLongitude" and "decimalLatitude"`}},
 		{name: "number error before range error", in: "lon,lat,role\n1,95,train\n1,x,test\n", geographic: true, is: ErrBadNumber, line: 3, field: "lat"},
+		// A GBIF download's occurrenceStatus ABSENT records were scored
+		// as presences where the species was not found.
+		{name: "records of absences", in: "decimalLongitude\tdecimalLatitude\toccurrenceStatus\trole\n1.5\t2.5\tPRESENT\ttrain\n-3\t4\tABSENT\ttest\n-3\t4\tabsent\ttrain\n2\t4\tPRESENT\ttest\n", geographic: true, is: ErrAbsence, field: "occurrenceStatus",
+			contains: []string{"2 record(s) say ABSENT in column occurrenceStatus (lines 3, 4)", "delete those lines"}},
+		{name: "one record of an absence", in: "lon,lat,role,occurrence_status\n1.5,2.5,train,present\n-3,4,test, Absent \n2,4,test,\n", geographic: true, is: ErrAbsence, field: "occurrence_status",
+			contains: []string{"1 record(s) say ABSENT in column occurrence_status (line 3)"}},
+		{name: "eleven records of absences", in: "lon,lat,role,occurrenceStatus\n1.5,2.5,train,PRESENT\n" + strings.Repeat("-3,4,test,ABSENT\n", 11), geographic: true, is: ErrAbsence, field: "occurrenceStatus",
+			contains: []string{"11 record(s) say ABSENT in column occurrenceStatus (lines 3, 4, 5, 6, 7, 8, 9, 10, 11, 12 and 1 more)"}},
 	}
 }
 

@@ -93,7 +93,7 @@ func LoadStudy(path string) (*Study, error) {
 		return nil, fmt.Errorf("inputs: cannot read study file %s: %w", path, err)
 	}
 	defer f.Close()
-	data, err := io.ReadAll(newLimitedReader(f, path, MaxStudyBytes, 0))
+	data, err := io.ReadAll(newLimitedReader(f, MaxStudyBytes, 0))
 	if err != nil {
 		if errors.Is(err, ErrTooLarge) {
 			return nil, &StudyError{File: path, Err: err}

@@ -240,7 +240,8 @@ func Open(path string) (*Raster, error) {
 
 // BandProblem says why band b cannot be scored as it declares its values,
 // or "" when it can: a band of complex numbers (a model is one real value
-// per cell; GDAL would hand over the real part alone), or a declared scale
+// per cell; GDAL would hand over the real part alone), of a type areasweep
+// does not read (64-bit integers), or a declared scale
 // of 0 (every cell would be the offset) or a scale or offset that is not a
 // finite number. The text follows the raster's path in a message.
 func BandProblem(b godal.Band) string {
@@ -248,6 +249,12 @@ func BandProblem(b godal.Band) string {
 	switch st.DataType {
 	case godal.CInt16, godal.CInt32, godal.CFloat32, godal.CFloat64:
 		return fmt.Sprintf("holds complex numbers (%s); a model must hold one real value per cell: write the values you mean into a real raster (gdal_translate -ot Float32 keeps the real part alone)", st.DataType)
+	case godal.Byte, godal.Int8, godal.UInt16, godal.Int16, godal.UInt32, godal.Int32, godal.Float32, godal.Float64:
+	default:
+		// GDAL 3.5's 64-bit integers (Int64, UInt64), which the GDAL
+		// binding areasweep reads blocks with does not know: it stopped
+		// the run with an internal error (exit 3).
+		return fmt.Sprintf("holds values of type %s, which areasweep does not read; convert it to 64-bit reals (gdal_translate -ot Float64 IN OUT, exact for whole numbers up to 2^53) or, when its values fit, to 32-bit integers (-ot Int32)", st.DataType)
 	}
 	switch {
 	case st.Scale == 0:

@@ -3,6 +3,7 @@ package pipeline
 import (
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -124,7 +125,9 @@ func TestMustExistBackslashes(t *testing.T) {
 // than one taxon (a portal's export of a genus) is warned about, the
 // taxa listed by their number of lines (counted by hand from recs), as
 // every line is scored as one species; one taxon, or no species column,
-// gives no warning.
+// gives no warning. A name with a line break (a quoted cell over two
+// lines) is quoted with it escaped: it used to split the warning over two
+// lines of the terminal and run.log.
 func TestTaxaWarning(t *testing.T) {
 	recs := func(names ...string) []inputs.Record {
 		var r []inputs.Record
@@ -140,6 +143,7 @@ func TestTaxaWarning(t *testing.T) {
 		{[]string{"Vornia palustris", "Vornia alia", "Vornia palustris", ""}, "names 2 taxa (Vornia palustris on 2 lines, Vornia alia on 1 line); areasweep scores every line of the table as one species"},
 		{[]string{"a", "b", "c", "d", "e", "f", "g", "g"}, "names 7 taxa (g on 2 lines, a on 1 line, b on 1 line, c on 1 line, d on 1 line, and 2 more)"},
 		{[]string{"Vornia m\xfcller", "Vornia alia", "Vornia alia"}, "(Vornia alia on 2 lines, Vornia m\uFFFDller on 1 line)"},
+		{[]string{"Vornia\npalustris", "Vornia alia", "Vornia\npalustris", "Vornia\talia"}, `("Vornia\npalustris" on 2 lines, "Vornia\talia" on 1 line, Vornia alia on 1 line)`},
 		{[]string{"Vornia palustris", "Vornia palustris", ""}, ""},
 		{[]string{"", ""}, ""},
 	}
@@ -220,6 +224,49 @@ func TestMustExistRasterFolder(t *testing.T) {
 		}
 		if tc.what == "extra extent x" && strings.Contains(err.Error(), "gdal_translate") {
 			t.Errorf("%s: %q advises a raster copy", tc.what, err)
+		}
+	}
+}
+
+// TestMustExistSubdatasetOrURL: a GDAL subdataset name is named as such
+// with the gdal_translate that extracts it, an HDF5 one too although it
+// holds "://" (HDF5:"x.h5"://grid, as gdalinfo lists it: it was named
+// "a GDAL virtual path or a URL" with advice to download the file); a
+// URL and a /vsi path are still named as such.
+func TestMustExistSubdatasetOrURL(t *testing.T) {
+	dir := t.TempDir()
+	h5 := filepath.Join(dir, "clim.h5")
+	cases := []struct{ path, want, not string }{
+		{`HDF5:"` + h5 + `"://bio1`, "is a GDAL subdataset name, not a file", "download or unzip"},
+		{"HDF5:" + h5 + "://group/bio1", "is a GDAL subdataset name, not a file", "download or unzip"},
+		{`NETCDF:"` + h5 + `":bio1`, "is a GDAL subdataset name, not a file", "download or unzip"},
+		{"https://example.org/model.tif", "is a GDAL virtual path or a URL", "gdal_translate"},
+		{"/vsizip/" + dir + "/m.zip/m.tif", "is a GDAL virtual path or a URL", "gdal_translate"},
+	}
+	for _, c := range cases {
+		err := mustExist("model m", c.path)
+		if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), c.not) {
+			t.Errorf("%s: %v", c.path, err)
+		}
+	}
+}
+
+// TestMustExistLineBreak: an input whose path holds a line break is
+// refused with the path quoted: a refusal of its contents named it over
+// two lines of the terminal ("areasweep: /d/bad\nocc.csv line 3, ..."),
+// and run.log's lines broke there too.
+func TestMustExistLineBreak(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"occ\nx.csv", "occ\rx.csv"} {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte("lon,lat,role\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		for _, what := range []string{"occurrences", "model m", "region"} {
+			err := mustExist(what, p)
+			if err == nil || !fault.IsBadInput(err) || strings.ContainsAny(err.Error(), "\n\r") || !strings.Contains(err.Error(), "holds a line break") || !strings.Contains(err.Error(), strconv.Quote(p)) {
+				t.Errorf("%s %q: %v", what, p, err)
+			}
 		}
 	}
 }

@@ -16,6 +16,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/airbusgeo/godal"
@@ -43,6 +44,9 @@ func (s *Study) checkFiles() error {
 		if err := checkHDF5("model "+name, path, true); err != nil {
 			return err
 		}
+		if err := checkASCIIGrid("model "+name, path); err != nil {
+			return err
+		}
 		s.models = append(s.models, namedPath{Name: name, Path: path})
 	}
 	for _, m := range o.Nulls {
@@ -51,6 +55,9 @@ func (s *Study) checkFiles() error {
 			return err
 		}
 		if err := checkHDF5("null "+name, path, true); err != nil {
+			return err
+		}
+		if err := checkASCIIGrid("null "+name, path); err != nil {
 			return err
 		}
 		s.models = append(s.models, namedPath{Name: name, Path: path, Null: true})
@@ -114,7 +121,7 @@ func (s *Study) openGrid() error {
 			if ext := strings.ToLower(filepath.Ext(m.Path)); errors.Is(err, extent.ErrNoCRS) && ext != ".tif" && ext != ".tiff" {
 				// gdal_edit.py records the CRS of other formats in an
 				// .aux.xml file, which areasweep does not read.
-				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + shellArg(m.Path) + " " + shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+".tif")
+				hint := "convert it with the CRS, e.g. gdal_translate -a_srs EPSG:4326 " + shellArg(m.Path) + " " + shellArg(convertedName(m.Path))
 				if ext == ".asc" {
 					hint = "write its CRS into " + strings.TrimSuffix(m.Path, filepath.Ext(m.Path)) + ".prj beside it (as modelling tools do), or " + hint
 				}
@@ -297,6 +304,45 @@ func crsAdvice(crs string) string {
 	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
 }
 
+// convertedName returns the GeoTIFF a conversion of the raster at path
+// is advised to write: STEM.tif, or STEM_crs.tif when STEM.tif exists
+// (as the GeoTIFF an ASCII grid was exported from often does), so that
+// the advice never overwrites a file of the user's.
+func convertedName(path string) string {
+	stem := strings.TrimSuffix(path, filepath.Ext(path))
+	if _, err := os.Lstat(stem + ".tif"); err == nil {
+		return stem + "_crs.tif"
+	}
+	return stem + ".tif"
+}
+
+// authorityCode matches a CRS written as an authority code at the start
+// of a text (EPSG:3035, ESRI:54009, IAU_2015:49900, OGC:CRS84, or a
+// compound EPSG:4326+5773), and what follows it. EPSG's codes are
+// numbers, so the letters of EPSG:4326xyz follow the code.
+var authorityCode = regexp.MustCompile(`^((?i:EPSG):[0-9]+(?:\+[0-9]+)?|[A-Za-z][A-Za-z0-9_]*:[A-Za-z0-9_.]+(?:\+[A-Za-z0-9_.]+)?)(.*)$`)
+
+// crsTrailingText refuses an --occurrences-crs written as an authority
+// code followed by more text ("EPSG:4326,EPSG:3857", "EPSG:32633 UTM
+// 33N", "EPSG:3035;"): GDAL reads the number at the start of the code
+// and ignores the rest without a word, so a second code, or a typo after
+// the first digits, would place the points in a CRS nobody chose. A URN
+// (urn:ogc:def:crs:EPSG::4326), a URL and GDAL's AUTO:ID,UNIT,LON,LAT
+// are left to GDAL, which reads them whole.
+func crsTrailingText(crs string) error {
+	text := strings.TrimSpace(crs)
+	m := authorityCode.FindStringSubmatch(text)
+	if m == nil || m[2] == "" {
+		return nil
+	}
+	switch auth, _, _ := strings.Cut(strings.ToUpper(text), ":"); auth {
+	case "URN", "HTTP", "HTTPS", "AUTO", "AUTO2":
+		return nil
+	}
+	return fmt.Errorf("--occurrences-crs %q has text after the CRS code %s (%q), which GDAL would ignore: give one CRS, e.g. --occurrences-crs %s",
+		crs, m[1], m[2], m[1])
+}
+
 // namedItem finds a second NAME=PATH item inside a path: a list written
 // with commas in one --model, --null or --extra flag.
 var namedItem = regexp.MustCompile(`,[A-Za-z0-9_.-]{1,40}=`)
@@ -365,7 +411,14 @@ func tildeFlag(what string) string {
 }
 
 func mustExist(what, path string) error {
-	if strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://") {
+	if strings.ContainsAny(path, "\n\r") {
+		// Every message naming the file, and run.log, would break
+		// there; --out refuses a line break too.
+		return fault.BadInput(fmt.Errorf("%s: the path %q holds a line break, which no message could show on one line; rename the file (or its folder)", what, path))
+	}
+	// HDF5:"x.h5"://grid holds "://" too: it is named as the subdataset
+	// it is, with the gdal_translate that extracts it, not as a URL.
+	if (strings.HasPrefix(path, "/vsi") || strings.Contains(path, "://")) && !gdalSubdataset.MatchString(path) {
 		return fault.BadInput(fmt.Errorf("%s: %s is a GDAL virtual path or a URL; areasweep reads local files only (it records and rechecks each input's SHA-256): "+
 			"download or unzip the file and give its path", what, path))
 	}
@@ -561,6 +614,12 @@ func taxaWarning(path string, recs []inputs.Record) string {
 				cut--
 			}
 			name = name[:cut] + "..."
+		}
+		// A name holding a line break or another control character (a
+		// quoted cell over two lines) is quoted with it escaped, so that
+		// the warning stays one line on the terminal and in run.log.
+		if strings.IndexFunc(name, unicode.IsControl) >= 0 {
+			name = strconv.Quote(name)
 		}
 		list = append(list, fmt.Sprintf("%s on %d %s", name, count[n], lines))
 	}

@@ -120,7 +120,7 @@ func (o *Options) validateInputs() error {
 	if o.Ecoregions != "" && o.EcoregionField == "" {
 		return fmt.Errorf("--ecoregions needs --ecoregion-field NAME")
 	}
-	return nil
+	return crsTrailingText(o.OccurrencesCRS)
 }
 
 // validateNumbers checks the single numbers: counts, shares, E values,
