@@ -71,6 +71,9 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
 		switch {
+		case len(mv.Diffs) == 0 && !mv.BaseDefined && mv.baseScored:
+			// Scored there, but this metric is undefined on it.
+			return string(mv.Verdict) + " (undefined on " + mv.Base + ", its only scored extent)"
 		case len(mv.Diffs) == 0 && !mv.BaseDefined:
 			return string(mv.Verdict) + " (not scored on " + mv.Base + ")"
 		case len(mv.Diffs) == 0:
@@ -99,10 +102,8 @@ func verdictPhrase(mv *ModelVerdict) string {
 // way round holds somewhere, or "A and B differ beyond noise on none of
 // n extents".
 func rankingClause(rk ModelRanking) string {
-	a, b, better, worse := rk.Model, rk.Other, rk.Better, rk.Worse
-	if worse > better {
-		a, b, better, worse = b, a, worse, better
-	}
+	lead := rk.leaderFirst()
+	a, b, better, worse := lead.Model, lead.Other, lead.Better, lead.Worse
 	n := rk.Extents
 	if rk.identical() {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
@@ -115,6 +116,18 @@ func rankingClause(rk ModelRanking) string {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
 	return out
+}
+
+// leaderFirst returns rk with its two models and their counts swapped
+// when the second is better beyond noise on more extents, so that a
+// sentence leads with the model ahead ("b is better than a on 11 of 11
+// extents", not "a is better than b on 0 of 11, worse on 11"). For the
+// words only: Diffs keep their sign (Model minus Other of rk).
+func (rk ModelRanking) leaderFirst() ModelRanking {
+	if rk.Worse > rk.Better {
+		rk.Model, rk.Other, rk.Better, rk.Worse = rk.Other, rk.Model, rk.Worse, rk.Better
+	}
+	return rk
 }
 
 // verdictsByJudgement says the verdicts of mvs grouped by judgement, in

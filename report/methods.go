@@ -497,7 +497,7 @@ func resultNumbers(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			out += fmt.Sprintf(" By AUC, %s and %s scored the same on %s (every paired difference 0).", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rk.WithinNoise)
+			out += " " + methodsRankingText(rk)
 		}
 	}
 	if s.Independence.Defined {
@@ -628,7 +628,7 @@ func reviewerText(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+			b.WriteString(reviewerRankingText(rk))
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -815,6 +815,38 @@ func aucAnswer(s *Sensitivity) string {
 	return ""
 }
 
+// methodsRankingText is the results' sentence on one AUC model
+// comparison: the model better beyond noise on more extents first, and
+// "differed beyond noise on none" when neither is better anywhere ("a was
+// better than b on 0 of 9 extents" is true but reads as a finding).
+func methodsRankingText(rk ModelRanking) string {
+	rk = rk.leaderFirst()
+	if rk.Better == 0 {
+		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s.", rk.Model, rk.Other, anyCompared(rk.Extents))
+	}
+	return fmt.Sprintf("By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rk.WithinNoise)
+}
+
+// anyCompared is "any of the 9 extents compared", or "the 1 extent
+// compared".
+func anyCompared(n int) string {
+	if n == 1 {
+		return "the 1 extent compared"
+	}
+	return fmt.Sprintf("any of the %d extents compared", n)
+}
+
+// reviewerRankingText is the reply's sentence on one AUC model
+// comparison, worded as methodsRankingText chooses, with whether their
+// order held (rankingOrderText).
+func reviewerRankingText(rk ModelRanking) string {
+	rk = rk.leaderFirst()
+	if rk.Better == 0 {
+		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s. ", rk.Model, rk.Other, anyCompared(rk.Extents))
+	}
+	return fmt.Sprintf("By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+}
+
 // rankingOrderText says, after an AUC model comparison counted over the
 // extents, whether the order of the two models held: ", so their order
 // held on every extent" when one is better beyond noise on all of them
@@ -908,7 +940,12 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 		if len(n.same) > 0 {
 			// Every placement equal to the null's: a copy of it.
-			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", on, aucOf(n.same), n.name, holds)
+			// "it shows" for one model, "they show" for several.
+			shows := "it shows"
+			if len(n.same) > 1 {
+				shows = "they show"
+			}
+			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent %s nothing beyond %s. ", on, aucOf(n.same), n.name, shows, holds)
 		}
 		if len(n.below) > 0 {
 			// Wholly below 0: the null ranks the test records better.

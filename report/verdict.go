@@ -161,6 +161,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		return mv
 	}
 	var baseOK bool
+	mv.baseScored = true
 	mv.BaseValue, baseOK, _, _, _, _ = metricValue(m, bs)
 	mv.BaseDefined = baseOK
 	outside := a.diffsFromBase(m, model, &mv)
@@ -209,6 +210,11 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 			where = "the reference extent " + a.base
 		}
 		mv.Sentence = fmt.Sprintf("%s: scored on %s only, so there is nothing to compare.", name, where)
+		if !baseOK {
+			// The model is scored there, but this metric is undefined:
+			// "scored on base only" would suggest a value to read.
+			mv.Sentence = fmt.Sprintf("%s: undefined on %s%s, the only extent it is scored on, so there is nothing to compare.", name, where, undefinedWhy(m, bs))
+		}
 		return
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
@@ -306,8 +312,13 @@ func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
 	if big.Diff == 0 {
 		largest = "every one is 0"
 	}
-	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d lie beyond ±%s and %s.",
-		name, BoyceCoverage, base, beyond, defined, fmtG(tol), largest)
+	// "1 of 10 lies", "3 of 10 lie": the verb follows the count beyond.
+	lie := "lie"
+	if beyond == 1 {
+		lie = "lies"
+	}
+	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d %s beyond ±%s and %s.",
+		name, BoyceCoverage, base, beyond, defined, lie, fmtG(tol), largest)
 }
 
 // toleranceText names metric m's tolerance: "our tolerance of ±0.02" when

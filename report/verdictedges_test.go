@@ -196,7 +196,7 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 		t.Fatalf("verdict: %+v", mv)
 	}
 	checkWords(t, "sentence", mv.Sentence, []string{"Boyce index of good is described, not judged (its paired intervals fall short of their 95% coverage: " + BoyceCoverage,
-		"lie beyond ±0.1", "the largest is -0.500 on whole"}, []string{"extent-sensitive", "95% interval"})
+		"1 of 7 lies beyond ±0.1", "the largest is -0.500 on whole"}, []string{"extent-sensitive", "95% interval"})
 	for _, d := range mv.Diffs {
 		if d.Defined && d.CommonPoints >= MinResampledPoints && (d.Position != positionNotCalibrated || !strings.Contains(d.NotJudged, "coverage")) {
 			t.Errorf("%s: position %q, reason %q", d.Extent, d.Position, d.NotJudged)

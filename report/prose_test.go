@@ -1,0 +1,153 @@
+package report
+
+import (
+	"testing"
+)
+
+// The tests in this file drive the sentence writers with the numbers of
+// studies that differ from the demo (a model worse than the null
+// everywhere, copies of the null, one scored extent, few test points),
+// each where a sentence once said other than its numbers. Expected
+// strings are the templates with the numbers filled in by hand.
+
+// TestBoyceBeyondCountAgrees: the Boyce description's count of
+// differences beyond the tolerance takes the verb of its number: "1 of 10
+// lies", "3 of 10 lie" ("1 of 10 lie beyond ±0.1" was written).
+func TestBoyceBeyondCountAgrees(t *testing.T) {
+	diff := func(ext string, d float64) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Diff: d}
+	}
+	cases := []struct {
+		name          string
+		diffs         []ExtentDifference
+		want, notWant string
+	}{
+		{"one beyond", []ExtentDifference{diff("a", -0.27), diff("b", 0.05)}, "1 of 2 lies beyond ±0.1 and the largest is -0.270 on a", "1 of 2 lie "},
+		{"two beyond", []ExtentDifference{diff("a", -0.27), diff("b", 0.15)}, "2 of 2 lie beyond ±0.1", "lies"},
+		{"none beyond", []ExtentDifference{diff("a", 0.02), diff("b", 0.05)}, "0 of 2 lie beyond ±0.1", "lies"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			mv := &ModelVerdict{Diffs: c.diffs, Largest: 0}
+			got := boyceDescription("Boyce index of m", "base", mv, 0.1)
+			checkWords(t, "Boyce", got, []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// sameAsNull is a Sensitivity whose models each score as the null n on
+// the base extent (every difference and its interval 0), as a model
+// passed both as --model and as --null does.
+func sameAsNull(models ...string) *Sensitivity {
+	s := &Sensitivity{BaseExtent: "base"}
+	for _, m := range models {
+		s.AboveNull = append(s.AboveNull, AboveNull{Metric: "auc", Model: m, Null: "twin", NullKind: "user", BaseExtent: "base",
+			BaseReading: ReadingNotAbove, Defined: 1, NotAbove: 1,
+			Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 48, Method: "placements", ModelValue: 0.726, NullValue: 0.726, Reading: ReadingNotAbove}}})
+	}
+	return s
+}
+
+// TestReplySameAsNullAgrees: the reply's sentence on models that score as
+// a null agrees with their number: "it shows" for one, "they show" for
+// several ("the AUCs of m and m2 are the same as that of twin ..., so on
+// that extent it shows nothing" was written).
+func TestReplySameAsNullAgrees(t *testing.T) {
+	cases := []struct {
+		models        []string
+		want, notWant string
+	}{
+		{[]string{"m"}, "the AUC of m is the same as that of twin (difference and interval 0), so on that extent it shows nothing beyond what twin holds", "they show"},
+		{[]string{"m", "m2"}, "the AUCs of m and m2 are the same as that of twin (difference and interval 0), so on that extent they show nothing beyond what twin holds", "it shows"},
+	}
+	for _, c := range cases {
+		checkWords(t, "reply", reviewerNullText(sameAsNull(c.models...)), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestUndefinedOnItsOnlyExtent: a metric undefined on the base extent
+// when the model is scored there and nowhere else (a partial ROC ratio
+// whose 1 − E crossing falls among tied test points, in a family of one
+// extent) is "undefined on base", not "not scored on base" (the model is
+// scored there) nor "scored on base only" (which suggests a value).
+func TestUndefinedOnItsOnlyExtent(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base")
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+			for j := range sc.PartialROC {
+				sc.PartialROC[j].Defined, sc.PartialROC[j].Reason = false, "the 1 - E crossing falls among test points tied at one value"
+			}
+		}
+	}
+	s := analyzed(t, r)
+	cases := []struct {
+		name, model   string
+		want, notWant []string
+	}{
+		{"undefined there", "good",
+			[]string{"undetermined (undefined on base, its only scored extent)",
+				"undefined on the base extent base (the 1 - E crossing falls among test points tied at one value), the only extent it is scored on, so there is nothing to compare."},
+			[]string{"not scored on base", "scored on the base extent base only"}},
+		{"defined there", "broad",
+			[]string{"undetermined (scored on base only)", "scored on the base extent base only, so there is nothing to compare."},
+			[]string{"undefined on"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			mv := s.findModelVerdict(key, c.model)
+			if mv == nil {
+				t.Fatalf("no partial ROC verdict of %s", c.model)
+			}
+			checkWords(t, "phrase and sentence", verdictPhrase(mv)+"\n"+mv.Sentence, c.want, c.notWant)
+		})
+	}
+}
+
+// TestRankingLeaderFirst: the methods' results and the reply lead an AUC
+// model comparison with the model better beyond noise on more extents,
+// as the headline does, and say "did not differ" when neither is better
+// anywhere ("worse was better than truth beyond noise on 0 of 11 extents,
+// worse on 11" and "a scored above b beyond noise on 0 of 9 extents" were
+// written: true, but read as findings).
+func TestRankingLeaderFirst(t *testing.T) {
+	cases := []struct {
+		name           string
+		rk             ModelRanking
+		methods, reply string
+		notWant        []string
+	}{
+		{"second ahead everywhere", ModelRanking{Model: "worse", Other: "truth", Extents: 11, Worse: 11, Diffs: make([]ExtentDifference, 11)},
+			"By AUC, truth was better than worse beyond noise on 11 of 11 extents, worse on 0 and within noise on 0.",
+			"By AUC, truth scored above worse beyond noise on 11 of 11 extents and below it on 0, so their order held on every extent. ",
+			[]string{"worse was better", "worse scored above"}},
+		{"second ahead on some", ModelRanking{Model: "a", Other: "b", Extents: 6, Better: 1, Worse: 4, WithinNoise: 1, Diffs: make([]ExtentDifference, 6)},
+			"By AUC, b was better than a beyond noise on 4 of 6 extents, worse on 1 and within noise on 1.",
+			"By AUC, b scored above a beyond noise on 4 of 6 extents and below it on 1, so their order depends on the extent. ",
+			[]string{"a was better", "a scored above"}},
+		{"first ahead", ModelRanking{Model: "a", Other: "b", Extents: 11, Better: 7, WithinNoise: 4, Diffs: make([]ExtentDifference, 11)},
+			"By AUC, a was better than b beyond noise on 7 of 11 extents, worse on 0 and within noise on 4.",
+			"By AUC, a scored above b beyond noise on 7 of 11 extents and below it on 0, so their order did not reverse beyond noise on any extent. ",
+			nil},
+		{"neither", ModelRanking{Model: "a", Other: "b", Extents: 9, WithinNoise: 9, Diffs: make([]ExtentDifference, 10)},
+			"By AUC, a and b did not differ beyond noise on any of the 9 extents compared.",
+			"By AUC, a and b did not differ beyond noise on any of the 9 extents compared. ",
+			[]string{"on 0 of 9"}},
+		{"neither, one extent", ModelRanking{Model: "a", Other: "b", Extents: 1, WithinNoise: 1, Diffs: make([]ExtentDifference, 1)},
+			"By AUC, a and b did not differ beyond noise on the 1 extent compared.",
+			"By AUC, a and b did not differ beyond noise on the 1 extent compared. ",
+			[]string{"any of the 1"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if got := methodsRankingText(c.rk); got != c.methods {
+				t.Errorf("methods: %q\nwant     %q", got, c.methods)
+			}
+			if got := reviewerRankingText(c.rk); got != c.reply {
+				t.Errorf("reply: %q\nwant   %q", got, c.reply)
+			}
+			checkWords(t, "methods and reply", methodsRankingText(c.rk)+reviewerRankingText(c.rk), nil, c.notWant)
+		})
+	}
+}
