@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"testing"
 )
 
@@ -148,6 +149,43 @@ func TestRankingLeaderFirst(t *testing.T) {
 				t.Errorf("reply: %q\nwant   %q", got, c.reply)
 			}
 			checkWords(t, "methods and reply", methodsRankingText(c.rk)+reviewerRankingText(c.rk), nil, c.notWant)
+		})
+	}
+}
+
+// TestAnalysisRankingLeaderFirst: the Analysis sentence on two models
+// leads with the one better beyond noise on more extents, and says "differ
+// beyond noise on none" when neither is better anywhere ("AUC: worse is
+// better than truth beyond noise on 0 of 11 extents, worse on 11" was
+// written). The counts come from the ranking itself.
+func TestAnalysisRankingLeaderFirst(t *testing.T) {
+	cases := []struct {
+		name          string
+		diff, lo, hi  float64
+		want, notWant string
+	}{
+		{"second ahead", -0.05, -0.08, -0.02, "AUC: truncated is better than good beyond noise on %d of %d extents, worse on 0, within noise on 0", "good is better"},
+		{"neither", 0.01, -0.02, 0.04, "AUC: good and truncated differ beyond noise on none of %[2]d extents (paired differences, 95%% intervals).", "is better than"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" && p.Defined {
+					p.Diff, p.Low, p.High = c.diff, c.lo, c.hi
+				}
+			}
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric == "auc" && rk.Model == "good" && rk.Other == "truncated" {
+					if rk.Extents < 2 {
+						t.Fatalf("too few extents compared: %+v", rk)
+					}
+					checkWords(t, "ranking", rk.Sentence, []string{fmt.Sprintf(c.want, rk.Extents, rk.Extents)}, []string{c.notWant})
+					return
+				}
+			}
+			t.Fatal("no AUC comparison of good and truncated")
 		})
 	}
 }

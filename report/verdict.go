@@ -623,9 +623,18 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
+			case r.Better == 0 && r.Worse == 0:
+				// "a is better than b on 0 of n" is true but reads as a
+				// finding.
+				r.Sentence = fmt.Sprintf("%s: %s and %s differ beyond noise on none of %d extent%s (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, r.Extents, Plural(r.Extents))
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			default:
+				// The model ahead first, as in the headline; the table
+				// keeps Model minus Other.
+				lead := r.leaderFirst()
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
+					upperFirst(m.Label), lead.Model, lead.Other, lead.Better, r.Extents, Plural(r.Extents), lead.Worse, r.WithinNoise)
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			}
 			out = append(out, r)
