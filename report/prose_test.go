@@ -189,3 +189,32 @@ func TestAnalysisRankingLeaderFirst(t *testing.T) {
 		})
 	}
 }
+
+// TestBoyceVerdictNamesUndescribed: the Boyce index's summary line says
+// "described, not judged, for every model" only when every model has a
+// difference from the base extent; a model whose index is undefined on
+// the base extent (too few windows with background area, as a model that
+// is 1 on the test cells and 0 elsewhere gives) is named apart ("Boyce
+// index: described, not judged, for every model" was written beside
+// "Boyce index of flat: undetermined, it is undefined on base").
+func TestBoyceVerdictNamesUndescribed(t *testing.T) {
+	m := MetricInfo{Key: MetricKeyBoyce, Kind: MetricBoyce, Label: "Boyce index", Tolerance: 0.1}
+	described := ModelVerdict{Model: "truth", Base: "base", Largest: 0, Diffs: []ExtentDifference{{Extent: "hull", Defined: true, Diff: -0.15}}}
+	undefined := ModelVerdict{Model: "flat", Base: "base", Largest: -1, Diffs: []ExtentDifference{{Extent: "hull"}}}
+	cases := []struct {
+		name          string
+		mvs           []ModelVerdict
+		want, notWant string
+	}{
+		{"all described", []ModelVerdict{described, described}, "Boyce index: described, not judged, for every model (its paired intervals", "could be formed"},
+		{"one undefined", []ModelVerdict{undefined, described},
+			"Boyce index: described, not judged, for truth (its paired intervals fall short of their 95% coverage: " + BoyceCoverage + " in our simulation check); no difference from the base extent could be formed for flat.",
+			"every model"},
+		{"none described", []ModelVerdict{undefined, undefined}, "Boyce index: no difference from the base extent could be formed for any model", "described, not judged"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "Boyce verdict", verdictFor(m, c.mvs).Sentence, []string{c.want}, []string{c.notWant})
+		})
+	}
+}

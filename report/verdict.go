@@ -567,12 +567,37 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	}
 	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
 	if m.Kind == MetricBoyce {
-		v.Sentence = fmt.Sprintf("%s: described, not judged, for every model (its paired intervals fall short of their 95%% coverage: %s in our simulation check).", upperFirst(m.Label), BoyceCoverage)
+		v.Sentence = boyceVerdictSentence(m, mvs, from)
 	}
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
 	}
 	return v
+}
+
+// boyceVerdictSentence sums up the Boyce index over the models of mvs:
+// described, not judged, for those with a difference from the base
+// extent (from names it), and named apart those with none (undefined or
+// not scored on the base extent, or alone on it), for which "described
+// for every model" would claim a description that is not there.
+func boyceVerdictSentence(m MetricInfo, mvs []ModelVerdict, from string) string {
+	var described, none []string
+	for _, mv := range mvs {
+		if mv.Largest >= 0 {
+			described = append(described, mv.Model)
+		} else {
+			none = append(none, mv.Model)
+		}
+	}
+	why := fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
+	switch {
+	case len(none) == 0:
+		return fmt.Sprintf("%s: described, not judged, for every model (%s).", upperFirst(m.Label), why)
+	case len(described) == 0:
+		return fmt.Sprintf("%s: no difference from %s could be formed for any model (each model's sentence says why).", upperFirst(m.Label), from)
+	}
+	return fmt.Sprintf("%s: described, not judged, for %s (%s); no difference from %s could be formed for %s.",
+		upperFirst(m.Label), joinList(described), why, from, joinList(none))
 }
 
 // rankings compares every pair of models on metric m extent by extent.
