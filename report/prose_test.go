@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"strings"
 	"testing"
 )
 
@@ -216,5 +217,30 @@ func TestBoyceVerdictNamesUndescribed(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			checkWords(t, "Boyce verdict", verdictFor(m, c.mvs).Sentence, []string{c.want}, []string{c.notWant})
 		})
+	}
+}
+
+// TestDecompositionIdenticalCapitalised: a score equal for every model on
+// every extent (an omission rate of 0 throughout, as a model that ranks
+// every test point above its cut gives) opens its decomposition sentence
+// with a capital ("omission at minimum training presence is identical
+// ..." was written).
+func TestDecompositionIdenticalCapitalised(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		for j := range r.Scores[i].Thresholds {
+			r.Scores[i].Thresholds[j].Omission = 0
+		}
+	}
+	s := analyzed(t, r)
+	n := 0
+	for _, d := range s.Decompositions {
+		if strings.Contains(d.Sentence, "is identical for every model and extent") {
+			n++
+			checkWords(t, "decomposition", d.Sentence, []string{"Omission at "}, []string{"omission at"})
+		}
+	}
+	if n == 0 {
+		t.Fatal("no decomposition says its score is identical for every model and extent")
 	}
 }

@@ -140,6 +140,10 @@
 #     now "coarse is better than good beyond noise on 12 of 13 extents,
 #     worse on 0"; that sentence of results.json only, every number and
 #     scores.csv unchanged);
+#   - rewritten again on branch hA (a decomposition of a score equal for
+#     every model and extent opens with a capital: the demo's "omission at
+#     minimum training presence is identical ..." now "Omission at ...";
+#     that sentence only);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
