@@ -92,8 +92,29 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// A description: no interval is quoted for a difference not judged.
 		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
+		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), undeterminedWhy(mv, d))
+}
+
+// undeterminedWhy says, after the largest difference d of an undetermined
+// verdict mv, what leaves it undetermined when d's own interval lies
+// within the tolerance (quoted alone, that interval reads as "robust"):
+// an interval on another extent that straddles it, an extent where no
+// difference could be formed, or differences not judged. "" otherwise.
+func undeterminedWhy(mv *ModelVerdict, d ExtentDifference) string {
+	if mv.Verdict != JudgementUndetermined || d.Position != "inside" {
+		return ""
+	}
+	if s := straddleText(mv.Diffs, d, mv.Tolerance); s != "" {
+		return s
+	}
+	if len(mv.Undefined) > 0 {
+		return "; no difference could be formed on " + joinList(mv.Undefined)
+	}
+	if p, r := notJudgedCounts(mv.Diffs); p+r > 0 {
+		return fmt.Sprintf("; not judged on %d extent%s: %s", p+r, Plural(p+r), notJudgedWhy(mv.Diffs))
+	}
+	return ""
 }
 
 // rankingClause says one AUC model comparison in the headline, the model

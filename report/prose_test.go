@@ -244,3 +244,42 @@ func TestDecompositionIdenticalCapitalised(t *testing.T) {
 		t.Fatal("no decomposition says its score is identical for every model and extent")
 	}
 }
+
+// TestUndeterminedPhraseSaysWhy: the headline's and the results' phrase
+// for an undetermined verdict whose largest difference has an interval
+// within the tolerance says what leaves it undetermined; quoted alone,
+// that interval reads as a robust verdict ("undetermined (largest
+// difference from base +0.040 on a, 95% interval +0.035 to +0.045)" was
+// written, with ±0.05).
+func TestUndeterminedPhraseSaysWhy(t *testing.T) {
+	inside := ExtentDifference{Extent: "a", Defined: true, Method: "placements", Diff: 0.04, Low: 0.035, High: 0.045, Position: "inside"}
+	wide := ExtentDifference{Extent: "b", Defined: true, Method: "placements", Diff: 0.01, Low: -0.06, High: 0.08, Position: "overlapping"}
+	few := ExtentDifference{Extent: "c", Defined: true, Method: "placements", CommonPoints: 6, Diff: 0.01, Low: -0.2, High: 0.2, Position: positionTooFew, minPoints: 10}
+	undef := ExtentDifference{Extent: "d"}
+	mk := func(v Judgement, ds ...ExtentDifference) *ModelVerdict {
+		mv := &ModelVerdict{Verdict: v, Base: "base", Tolerance: 0.05, Largest: 0, Diffs: ds}
+		for _, d := range ds {
+			if !d.Defined {
+				mv.Undefined = append(mv.Undefined, d.Extent)
+			}
+		}
+		return mv
+	}
+	head := "(largest difference from base +0.040 on a, 95% interval +0.035 to +0.045"
+	cases := []struct {
+		name string
+		mv   *ModelVerdict
+		want string
+	}{
+		{"straddles elsewhere", mk(JudgementUndetermined, inside, wide),
+			head + "; the 95% interval straddles ±0.05 on 1 of 2 extents, reaching furthest beyond it with +0.010 on b (95% interval -0.060 to +0.080))"},
+		{"undefined elsewhere", mk(JudgementUndetermined, inside, undef), head + "; no difference could be formed on d)"},
+		{"not judged elsewhere", mk(JudgementUndetermined, inside, few), head + "; not judged on 1 extent: too few common test points)"},
+		{"robust", mk(JudgementRobust, inside), head + ")"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "phrase", verdictPhrase(c.mv), []string{c.want}, nil)
+		})
+	}
+}
