@@ -283,3 +283,32 @@ func TestUndeterminedPhraseSaysWhy(t *testing.T) {
 		})
 	}
 }
+
+// TestAboveNullUndefinedSaysOnHowFew: a model-minus-null difference that
+// could not be formed on the base extent because the two share fewer than
+// 2 test points says so (a study with 2 test points, 1 of them on base,
+// gave "On base, AUC of good minus distance_null (distance-only null)
+// could not be formed." and no reason).
+func TestAboveNullUndefinedSaysOnHowFew(t *testing.T) {
+	r := &Results{}
+	m := MetricInfo{Key: "auc", Kind: MetricAUC, Label: "AUC"}
+	cases := []struct {
+		name          string
+		gap           NullGap
+		want, notWant string
+	}{
+		{"one common point", NullGap{Extent: "base", CommonPoints: 1}, "On base, AUC of good minus nul could not be formed: they share 1 test point.", "points"},
+		{"none", NullGap{Extent: "base", CommonPoints: 0}, "could not be formed: they share 0 test points.", ""},
+		{"undefined on more", NullGap{Extent: "base", CommonPoints: 30}, "On base, AUC of good minus nul could not be formed.", "share"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			an := &AboveNull{Metric: "auc", Model: "good", Null: "nul", BaseExtent: "base", BaseReading: ReadingUndefined, Gaps: []NullGap{c.gap}}
+			nw := []string{}
+			if c.notWant != "" {
+				nw = append(nw, c.notWant)
+			}
+			checkWords(t, "sentence", aboveNullSentence(r, m, an), []string{c.want}, nw)
+		})
+	}
+}
