@@ -81,6 +81,9 @@ func verdictPhrase(mv *ModelVerdict) string {
 		case !mv.BaseDefined:
 			return string(mv.Verdict) + " (undefined on " + mv.Base + ")"
 		}
+		if n, ok := mv.fewCommon(); ok {
+			return fmt.Sprintf("%s (no difference could be formed: %s shares at most %d test point%s with any other extent)", mv.Verdict, mv.Base, n, Plural(n))
+		}
 		return string(mv.Verdict) + " (no difference could be formed)"
 	}
 	d := mv.Diffs[mv.Largest]

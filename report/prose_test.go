@@ -312,3 +312,28 @@ func TestAboveNullUndefinedSaysOnHowFew(t *testing.T) {
 		})
 	}
 }
+
+// TestNoDifferenceSaysOnHowFew: an AUC verdict with no difference formed
+// because the base extent shares fewer than 2 test points with every
+// other extent says so, in its sentence and in the headline's phrase (a
+// study with 1 test point on base gave "undetermined, no paired difference
+// from base could be formed." and "undetermined (no difference could be
+// formed)" with no reason). A difference missing for another reason (no
+// paired record) keeps the plain words.
+func TestNoDifferenceSaysOnHowFew(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Defined, p.CommonPoints = false, 1
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil || mv.Largest >= 0 {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"undetermined, no paired difference from base could be formed: it shares at most 1 test point with any other extent."}, nil)
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"undetermined (no difference could be formed: base shares at most 1 test point with any other extent)"}, nil)
+	plain := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", BaseDefined: true, Largest: -1, Diffs: []ExtentDifference{{Extent: "hull"}}}
+	checkWords(t, "phrase without a record", verdictPhrase(plain), []string{"undetermined (no difference could be formed)"}, []string{"shares"})
+}

@@ -218,6 +218,9 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		return
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
+		if n, ok := mv.fewCommon(); ok {
+			why += fmt.Sprintf(": it shares at most %d test point%s with any other extent", n, Plural(n))
+		}
 		if !baseOK {
 			why = fmt.Sprintf("it is undefined on %s, %s%s", a.base, baseWord(a.base), undefinedWhy(m, bs))
 		}
@@ -291,6 +294,20 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s whether it moves by more than %s; the largest difference from %s is %s%s.%s%s",
 			name, why, tol, a.base, differenceText(big, m.Tolerance), straddle, notOn, tooFewText(mv.Diffs))
 	}
+}
+
+// fewCommon reports, for a verdict with no difference formed, whether
+// each difference failed for want of common test points (a paired record
+// on fewer than 2), and the most that any other extent shares with the
+// base extent; ok is false when some other reason may apply.
+func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
+	for _, d := range mv.Diffs {
+		if d.Defined || d.Method == "" || d.CommonPoints >= 2 {
+			return 0, false
+		}
+		most = max(most, d.CommonPoints)
+	}
+	return most, len(mv.Diffs) > 0
 }
 
 // boyceDescription describes, without judging, the Boyce index of a
