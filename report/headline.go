@@ -133,13 +133,26 @@ func rankingClause(rk ModelRanking) string {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
-		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, Plural(n))
+		return fmt.Sprintf("%s and %s differ beyond noise on none of %d %s", a, b, n, rk.extentsWord())
 	}
-	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d extent%s", a, b, better, n, Plural(n))
+	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d %s", a, b, better, n, rk.extentsWord())
 	if worse > 0 {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
 	return out
+}
+
+// extentsWord is "extents" (or "extent" for one) after the count of
+// extents rk compared, with " compared" when some extents both models
+// are scored on were left out of the count (on too few common test
+// points, say): "on 3 of 9 extents" beside "Across 10 evaluation extents"
+// reads as a miscount.
+func (rk ModelRanking) extentsWord() string {
+	w := "extent" + Plural(rk.Extents)
+	if len(rk.Diffs) > rk.Extents {
+		w += " compared"
+	}
+	return w
 }
 
 // leaderFirst returns rk with its two models and their counts swapped

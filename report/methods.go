@@ -824,7 +824,7 @@ func methodsRankingText(rk ModelRanking) string {
 	if rk.Better == 0 {
 		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s.", rk.Model, rk.Other, anyCompared(rk.Extents))
 	}
-	return fmt.Sprintf("By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rk.WithinNoise)
+	return fmt.Sprintf("By AUC, %s was better than %s beyond noise on %d of %d %s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, rk.extentsWord(), rk.Worse, rk.WithinNoise)
 }
 
 // anyCompared is "any of the 9 extents compared", or "the 1 extent
@@ -844,7 +844,7 @@ func reviewerRankingText(rk ModelRanking) string {
 	if rk.Better == 0 {
 		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s. ", rk.Model, rk.Other, anyCompared(rk.Extents))
 	}
-	return fmt.Sprintf("By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+	return fmt.Sprintf("By AUC, %s scored above %s beyond noise on %d of %d %s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.extentsWord(), rk.Worse, rankingOrderText(rk))
 }
 
 // rankingOrderText says, after an AUC model comparison counted over the

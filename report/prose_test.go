@@ -337,3 +337,39 @@ func TestNoDifferenceSaysOnHowFew(t *testing.T) {
 	plain := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", BaseDefined: true, Largest: -1, Diffs: []ExtentDifference{{Extent: "hull"}}}
 	checkWords(t, "phrase without a record", verdictPhrase(plain), []string{"undetermined (no difference could be formed)"}, []string{"shares"})
 }
+
+// TestRankingSaysCompared: when some extents both models are scored on
+// are left out of a comparison's count (too few common test points), the
+// count says "extents compared": "good and coarse differ beyond noise on
+// none of 9 extents" under "Across 10 evaluation extents" read as a
+// miscount (12 test points on one edge of the base region, 8 of them on
+// points_50km).
+func TestRankingSaysCompared(t *testing.T) {
+	cases := []struct {
+		name                     string
+		rk                       ModelRanking
+		headline, methods, reply string
+	}{
+		{"one left out", ModelRanking{Model: "a", Other: "b", Extents: 9, Better: 3, WithinNoise: 6, Diffs: make([]ExtentDifference, 10)},
+			"a is better than b beyond noise on 3 of 9 extents compared",
+			"By AUC, a was better than b beyond noise on 3 of 9 extents compared, worse on 0 and within noise on 6.",
+			"By AUC, a scored above b beyond noise on 3 of 9 extents compared and below it on 0"},
+		{"neither, one left out", ModelRanking{Model: "a", Other: "b", Extents: 9, WithinNoise: 9, Diffs: make([]ExtentDifference, 10)},
+			"a and b differ beyond noise on none of 9 extents compared", "", ""},
+		{"all counted", ModelRanking{Model: "a", Other: "b", Extents: 9, Better: 3, WithinNoise: 6, Diffs: make([]ExtentDifference, 9)},
+			"a is better than b beyond noise on 3 of 9 extents",
+			"By AUC, a was better than b beyond noise on 3 of 9 extents, worse on 0 and within noise on 6.",
+			"By AUC, a scored above b beyond noise on 3 of 9 extents and below it on 0"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if got := rankingClause(c.rk); got != c.headline {
+				t.Errorf("headline: %q\nwant      %q", got, c.headline)
+			}
+			if c.methods != "" {
+				checkWords(t, "methods", methodsRankingText(c.rk), []string{c.methods}, nil)
+				checkWords(t, "reply", reviewerRankingText(c.rk), []string{c.reply}, nil)
+			}
+		})
+	}
+}
