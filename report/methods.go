@@ -205,7 +205,28 @@ func methodsInference(b *strings.Builder, r *Results) {
 	s, st := r.Sensitivity, r.Settings
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resample%s of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples, Plural(st.PairedResamples))
+	one := len(s.ScoredExtents) < 2
+	if what := pairedWhat(s); what != "" {
+		fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resample%s of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993).", what, st.PairedResamples, Plural(st.PairedResamples))
+		if !one {
+			b.WriteString(" Where the test records differ, the change of test set is reported separately.")
+		}
+	}
+	if one {
+		// Nothing was compared across extents: the verdicts, the
+		// tolerances they use and the descriptions across extents were
+		// not made, and the methods must not say they were.
+		if len(s.ScoredExtents) == 0 {
+			b.WriteString(" No extent could be scored, so no score was compared or judged.\n\n")
+			return
+		}
+		b.WriteString(" With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.")
+		if len(models) >= 2 {
+			b.WriteString(" Models were compared by their paired differences on that extent.")
+		}
+		b.WriteString("\n\n")
+		return
+	}
 	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
@@ -404,18 +425,29 @@ func bootstrapNote(st Settings) string {
 }
 
 // pairedWhat names the paired differences the run formed: between the
-// extents of one model always, between models on one extent only when
-// there are two models or more, and between a model and a null when a
-// null was scored.
+// extents of one model when two extents or more are scored, between
+// models on one extent only when there are two models or more, and
+// between a model and a null when a null was scored; "" when none.
 func pairedWhat(s *Sensitivity) string {
-	parts := []string{"between extents of one model"}
+	var parts []string
+	if len(s.ScoredExtents) == 0 {
+		return "" // nothing scored, nothing compared
+	}
+	if len(s.ScoredExtents) >= 2 {
+		// With one scored extent there is no other to take a
+		// difference from.
+		parts = append(parts, "between extents of one model")
+	}
 	if len(s.ModelNames) >= 2 {
 		parts = append(parts, "between models on one extent")
 	}
 	if len(s.AboveNull) > 0 {
 		parts = append(parts, "between a model and a null on one extent")
 	}
-	if len(parts) == 1 {
+	switch len(parts) {
+	case 0:
+		return ""
+	case 1:
 		return "Differences " + parts[0]
 	}
 	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ") + ","

@@ -373,3 +373,28 @@ func TestRankingSaysCompared(t *testing.T) {
 		})
 	}
 }
+
+// TestMethodsOneExtentClaimsNoComparison: with one scored extent the
+// methods paragraph does not describe comparisons across extents that
+// were not made (it said "Differences between extents of one model ...
+// were taken", "We call a score robust to the extent when ..." and "we
+// report the spread of each score across extents, the split of the sums
+// of squares ..." for a family of 1 evaluation extent); with several it
+// still does.
+func TestMethodsOneExtentClaimsNoComparison(t *testing.T) {
+	across := []string{"Differences between extents of one model", "We call a score robust to the extent when", "the spread of each score across extents",
+		"Where the test records differ, the change of test set is reported separately", "The Boyce index's differences were described"}
+	t.Run("one extent", func(t *testing.T) {
+		r := loadSample(t)
+		onlyExtents(r, "base")
+		analyzed(t, r)
+		methods, _, _ := strings.Cut(methodsText(r), "Results: ")
+		checkWords(t, "methods", methods, []string{"With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.",
+			"Differences between models on one extent were taken on the test records both sides hold (paired)", "Models were compared by their paired differences on that extent."}, across)
+	})
+	t.Run("several extents", func(t *testing.T) {
+		r := analyzedSample(t)
+		methods, _, _ := strings.Cut(methodsText(r), "Results: ")
+		checkWords(t, "methods", methods, across[:4], []string{"With one scored extent"})
+	})
+}
