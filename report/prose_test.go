@@ -398,3 +398,16 @@ func TestMethodsOneExtentClaimsNoComparison(t *testing.T) {
 		checkWords(t, "methods", methods, across[:4], []string{"With one scored extent"})
 	})
 }
+
+// TestTruncationQuotesTheFlaggedTie: the truncation sentence's "up to"
+// quotes the largest flagged tie of test points, not the longest last
+// segment of any curve: a model whose curve on one extent runs flat at
+// y = 1 over 0.824 of the area axis (background below every test point,
+// not flagged) and ties test points over 0.300 on another was said to
+// "share its lowest value with up to 0.824 of the area axis".
+func TestTruncationQuotesTheFlaggedTie(t *testing.T) {
+	a := &analysis{r: &Results{Settings: Settings{E: []float64{0.05}}}}
+	tc := &TruncationCheck{Model: "m", FloorShare: 0.5, FloorFlag: true, Flag: true, MaxJump: 0.824,
+		Tails: []TailJump{{Extent: "hull", YFrom: 0.8, Jump: 0.3}, {Extent: "base", YFrom: 0.9, Jump: 0.25}}}
+	checkWords(t, "truncation", a.truncationSentence(tc), []string{"on 2 extents test points share its lowest value with up to 0.300 of the area axis (flagged above 0.2)"}, []string{"0.824"})
+}
