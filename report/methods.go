@@ -136,10 +136,22 @@ func methodsRecords(b *strings.Builder, r *Results) {
 		}
 		holdAll := ""
 		if all > 0 {
-			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
+			holdAll = fmt.Sprintf("%s on %d of the %d extents; ", allOf(pc.Test), all, len(s.ScoredExtents))
 		}
 		fmt.Fprintf(b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, fewerList(s, fewer, all > 0))
 	}
+}
+
+// allOf names every one of n test records: "all 60", "both" for 2, "the
+// one" for 1 ("all 2 on 8 of the 11 extents" was written).
+func allOf(n int) string {
+	switch n {
+	case 1:
+		return "the one"
+	case 2:
+		return "both"
+	}
+	return fmt.Sprintf("all %d", n)
 }
 
 // methodsScores writes what was computed on each extent: the AUC, the

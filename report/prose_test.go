@@ -411,3 +411,26 @@ func TestTruncationQuotesTheFlaggedTie(t *testing.T) {
 		Tails: []TailJump{{Extent: "hull", YFrom: 0.8, Jump: 0.3}, {Extent: "base", YFrom: 0.9, Jump: 0.25}}}
 	checkWords(t, "truncation", a.truncationSentence(tc), []string{"on 2 extents test points share its lowest value with up to 0.300 of the area axis (flagged above 0.2)"}, []string{"0.824"})
 }
+
+// TestMethodsRecordsAllOf: the methods' count of extents holding every
+// test record names them as a person would: "both on 8 of the 11
+// extents" for 2 test records ("all 2 on ..." was written), "the one"
+// for 1, "all 60" otherwise.
+func TestMethodsRecordsAllOf(t *testing.T) {
+	cases := []struct {
+		test   int
+		counts []int
+		want   string
+	}{
+		{2, []int{1, 2, 2}, "the extents differ in their test records: both on 2 of the 3 extents; base 1."},
+		{1, []int{1, 0, 1}, "the extents differ in their test records: the one on 2 of the 3 extents; region 0."},
+		{60, []int{48, 60, 60}, "the extents differ in their test records: all 60 on 2 of the 3 extents; base 48."},
+	}
+	for _, c := range cases {
+		r := &Results{PointCounts: PointCounts{Train: 80, Test: c.test},
+			Sensitivity: &Sensitivity{BaseExtent: "base", ScoredExtents: []string{"base", "region", "hull"}, TestPoints: c.counts, TestPointsVary: true}}
+		var b strings.Builder
+		methodsRecords(&b, r)
+		checkWords(t, "records", b.String(), []string{c.want}, nil)
+	}
+}
