@@ -434,3 +434,20 @@ func TestMethodsRecordsAllOf(t *testing.T) {
 		checkWords(t, "records", b.String(), []string{c.want}, nil)
 	}
 }
+
+// TestSortingBiasNoteAboveOne: the sorting-bias note reads a ratio above
+// 1 when some extent has one (12 test points along the far edge of the
+// base region gave ratios up to 2.452 under a note that explained only
+// values below 1), and keeps to values below 1 otherwise.
+func TestSortingBiasNoteAboveOne(t *testing.T) {
+	above := "A ratio above 1 means the test points lie farther from the training points than the extent's cells do, by that measure (mean or median)."
+	for _, c := range []struct {
+		ratio float64
+		has   bool
+	}{{2.452, true}, {0.819, false}} {
+		r := &Results{Extents: []Extent{{ID: "base", SortingBias: &SortingBias{Defined: true, RatioMean: c.ratio, RatioMedian: c.ratio}}}}
+		if got := sortingBiasNoteFor(r); strings.Contains(got, above) != c.has || !strings.HasPrefix(got, sortingBiasNote) {
+			t.Errorf("ratio %g: %q", c.ratio, got)
+		}
+	}
+}
