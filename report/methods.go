@@ -837,7 +837,9 @@ func aucAnswer(s *Sensitivity) string {
 	}
 	switch v.Verdict {
 	case JudgementRobust:
-		return "Within our tolerance, the AUC did not depend on which of these extents it was computed on. "
+		// "our tolerance" only when it is our default: a tolerance the
+		// user set is named as theirs, with its value (toleranceText).
+		return fmt.Sprintf("Within %s, the AUC did not depend on which of these extents it was computed on. ", toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: v.Tolerance}))
 	case JudgementSensitive:
 		var parts []string
 		for _, m := range s.ModelNames {

@@ -451,3 +451,20 @@ func TestSortingBiasNoteAboveOne(t *testing.T) {
 		}
 	}
 }
+
+// TestReplyRobustNamesTheTolerance: the reply's answer for an AUC robust
+// for every model names the tolerance with its value, as ours only when
+// it is our default ("Within our tolerance, ..." was written for a run
+// with --tolerance-auc 0.3).
+func TestReplyRobustNamesTheTolerance(t *testing.T) {
+	for _, c := range []struct {
+		tol           float64
+		want, notWant string
+	}{
+		{0.3, "Within the tolerance of ±0.3 set for this run, the AUC did not depend on which of these extents it was computed on.", "our tolerance"},
+		{DefaultToleranceAUC, "Within our tolerance of ±0.02, the AUC did not depend on which of these extents it was computed on.", "set for this run"},
+	} {
+		s := &Sensitivity{ScoredExtents: []string{"base", "hull"}, Verdicts: []Verdict{{Metric: "auc", Verdict: JudgementRobust, Tolerance: c.tol}}}
+		checkWords(t, "reply", aucAnswer(s), []string{c.want}, []string{c.notWant})
+	}
+}
