@@ -95,6 +95,12 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// A description: no interval is quoted for a difference not judged.
 		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
 	}
+	if mv.Verdict == JudgementRobust && d.Diff == 0 {
+		// The largest difference is 0, so every one is: naming one
+		// extent as "the largest" would pick it arbitrarily (as judge
+		// says "every one is 0").
+		return fmt.Sprintf("%s (every difference from %s is 0)", mv.Verdict, mv.Base)
+	}
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
 		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), undeterminedWhy(mv, d))
 }

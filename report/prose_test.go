@@ -468,3 +468,17 @@ func TestReplyRobustNamesTheTolerance(t *testing.T) {
 		checkWords(t, "reply", aucAnswer(s), []string{c.want}, []string{c.notWant})
 	}
 }
+
+// TestRobustPhraseEveryZero: a robust verdict whose differences are all 0
+// says so in the headline's and the results' phrase instead of naming
+// one extent as "the largest" ("robust (largest difference from base
+// +0.000 on hull, 95% interval +0.000 to +0.000)").
+func TestRobustPhraseEveryZero(t *testing.T) {
+	zero := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Method: "placements", Position: "inside"}
+	}
+	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Largest: 0, Diffs: []ExtentDifference{zero("hull"), zero("whole")}}
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (every difference from base is 0)"}, []string{"largest", "hull"})
+	mv.Diffs[1].Diff, mv.Diffs[1].Low, mv.Diffs[1].High, mv.Largest = 0.004, 0.001, 0.007, 1
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (largest difference from base +0.004 on whole, 95% interval +0.001 to +0.007)"}, nil)
+}
