@@ -187,6 +187,9 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	g := an.gap(an.BaseExtent)
 	score := metricPhrase(m)
 	switch {
+	case g != nil && !g.Defined && g.CommonPoints < 2:
+		// Say on how few: "could not be formed" alone reads as a fault.
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed: they share %d test point%s.", an.BaseExtent, score, an.Model, null, g.CommonPoints, Plural(g.CommonPoints))
 	case g == nil || !g.Defined:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
 	case !notJudgedPosition(an.BaseReading) && g.zero():

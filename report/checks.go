@@ -95,7 +95,14 @@ func (a *analysis) truncationSentence(t *TruncationCheck) string {
 		}
 	}
 	if len(t.Tails) > 0 {
-		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), Plural(len(t.Tails)), f3(t.MaxJump), fmtG(TailJumpFlag))
+		// The largest of the flagged ties: MaxJump spans every curve,
+		// including a flat run at y = 1 (background below every test
+		// point), which is no tie of test points.
+		most := 0.0
+		for _, tj := range t.Tails {
+			most = math.Max(most, tj.Jump)
+		}
+		s += fmt.Sprintf(" on %d extent%s test points share its lowest value with up to %s of the area axis (flagged above %s)", len(t.Tails), Plural(len(t.Tails)), f3(most), fmtG(TailJumpFlag))
 		s += ". Full AUC gives those test points half credit against the whole tied area"
 	}
 	e := "E"

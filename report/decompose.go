@@ -33,7 +33,7 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 	d.sumsOfSquares()
 	if d.SSTotal <= 0 {
 		d.Note = "every model scores the same on every extent"
-		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", m.Label)
+		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", upperFirst(m.Label))
 		return d
 	}
 	d.Defined = true

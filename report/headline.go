@@ -71,12 +71,18 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
 		switch {
+		case len(mv.Diffs) == 0 && !mv.BaseDefined && mv.baseScored:
+			// Scored there, but this metric is undefined on it.
+			return string(mv.Verdict) + " (undefined on " + mv.Base + ", its only scored extent)"
 		case len(mv.Diffs) == 0 && !mv.BaseDefined:
 			return string(mv.Verdict) + " (not scored on " + mv.Base + ")"
 		case len(mv.Diffs) == 0:
 			return string(mv.Verdict) + " (scored on " + mv.Base + " only)"
 		case !mv.BaseDefined:
 			return string(mv.Verdict) + " (undefined on " + mv.Base + ")"
+		}
+		if n, ok := mv.fewCommon(); ok {
+			return fmt.Sprintf("%s (no difference could be formed: %s shares at most %d test point%s with any other extent)", mv.Verdict, mv.Base, n, Plural(n))
 		}
 		return string(mv.Verdict) + " (no difference could be formed)"
 	}
@@ -89,8 +95,35 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// A description: no interval is quoted for a difference not judged.
 		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+	if mv.Verdict == JudgementRobust && d.Diff == 0 {
+		// The largest difference is 0, so every one is: naming one
+		// extent as "the largest" would pick it arbitrarily (as judge
+		// says "every one is 0").
+		return fmt.Sprintf("%s (every difference from %s is 0)", mv.Verdict, mv.Base)
+	}
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
+		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), undeterminedWhy(mv, d))
+}
+
+// undeterminedWhy says, after the largest difference d of an undetermined
+// verdict mv, what leaves it undetermined when d's own interval lies
+// within the tolerance (quoted alone, that interval reads as "robust"):
+// an interval on another extent that straddles it, an extent where no
+// difference could be formed, or differences not judged. "" otherwise.
+func undeterminedWhy(mv *ModelVerdict, d ExtentDifference) string {
+	if mv.Verdict != JudgementUndetermined || d.Position != "inside" {
+		return ""
+	}
+	if s := straddleText(mv.Diffs, d, mv.Tolerance); s != "" {
+		return s
+	}
+	if len(mv.Undefined) > 0 {
+		return "; no difference could be formed on " + joinList(mv.Undefined)
+	}
+	if p, r := notJudgedCounts(mv.Diffs); p+r > 0 {
+		return fmt.Sprintf("; not judged on %d extent%s: %s", p+r, Plural(p+r), notJudgedWhy(mv.Diffs))
+	}
+	return ""
 }
 
 // rankingClause says one AUC model comparison in the headline, the model
@@ -99,22 +132,45 @@ func verdictPhrase(mv *ModelVerdict) string {
 // way round holds somewhere, or "A and B differ beyond noise on none of
 // n extents".
 func rankingClause(rk ModelRanking) string {
-	a, b, better, worse := rk.Model, rk.Other, rk.Better, rk.Worse
-	if worse > better {
-		a, b, better, worse = b, a, worse, better
-	}
+	lead := rk.leaderFirst()
+	a, b, better, worse := lead.Model, lead.Other, lead.Better, lead.Worse
 	n := rk.Extents
 	if rk.identical() {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
-		return fmt.Sprintf("%s and %s differ beyond noise on none of %d extent%s", a, b, n, Plural(n))
+		return fmt.Sprintf("%s and %s differ beyond noise on none of %d %s", a, b, n, rk.extentsWord())
 	}
-	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d extent%s", a, b, better, n, Plural(n))
+	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d %s", a, b, better, n, rk.extentsWord())
 	if worse > 0 {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
 	return out
+}
+
+// extentsWord is "extents" (or "extent" for one) after the count of
+// extents rk compared, with " compared" when some extents both models
+// are scored on were left out of the count (on too few common test
+// points, say): "on 3 of 9 extents" beside "Across 10 evaluation extents"
+// reads as a miscount.
+func (rk ModelRanking) extentsWord() string {
+	w := "extent" + Plural(rk.Extents)
+	if len(rk.Diffs) > rk.Extents {
+		w += " compared"
+	}
+	return w
+}
+
+// leaderFirst returns rk with its two models and their counts swapped
+// when the second is better beyond noise on more extents, so that a
+// sentence leads with the model ahead ("b is better than a on 11 of 11
+// extents", not "a is better than b on 0 of 11, worse on 11"). For the
+// words only: Diffs keep their sign (Model minus Other of rk).
+func (rk ModelRanking) leaderFirst() ModelRanking {
+	if rk.Worse > rk.Better {
+		rk.Model, rk.Other, rk.Better, rk.Worse = rk.Other, rk.Model, rk.Worse, rk.Better
+	}
+	return rk
 }
 
 // verdictsByJudgement says the verdicts of mvs grouped by judgement, in

@@ -201,7 +201,7 @@ func independenceSection(r *Results) (sentence string, dist *htmlTable, sorting 
 			Rows: [][]cell{{ic(ind.N), nc(ind.Min, 2), nc(ind.Q1, 2), nc(ind.Median, 2), nc(ind.Q3, 2), nc(ind.Max, 2), nc(ind.CellWidthKm, 2), nc(ind.NearKm, 2), nc(ind.NearShare, 2)}}}
 	}
 	if sb := sortingBiasRows(r); len(sb) > 0 {
-		sorting = &notedTable{Note: sortingBiasNote, Table: htmlTable{ID: "tbl-sorting-bias",
+		sorting = &notedTable{Note: sortingBiasNoteFor(r), Table: htmlTable{ID: "tbl-sorting-bias",
 			Caption: "Distance to the nearest training point: test points against the extent's cells",
 			Head: []string{"extent", "area (km²)",
 				"test points", "test mean km", "cells mean km", "ratio of means", "test median km", "cells median km", "ratio of medians"},

@@ -136,10 +136,22 @@ func methodsRecords(b *strings.Builder, r *Results) {
 		}
 		holdAll := ""
 		if all > 0 {
-			holdAll = fmt.Sprintf("all %d on %d of the %d extents; ", pc.Test, all, len(s.ScoredExtents))
+			holdAll = fmt.Sprintf("%s on %d of the %d extents; ", allOf(pc.Test), all, len(s.ScoredExtents))
 		}
 		fmt.Fprintf(b, " Each extent is scored on the test records inside it, so the extents differ in their test records: %s%s.", holdAll, fewerList(s, fewer, all > 0))
 	}
+}
+
+// allOf names every one of n test records: "all 60", "both" for 2, "the
+// one" for 1 ("all 2 on 8 of the 11 extents" was written).
+func allOf(n int) string {
+	switch n {
+	case 1:
+		return "the one"
+	case 2:
+		return "both"
+	}
+	return fmt.Sprintf("all %d", n)
 }
 
 // methodsScores writes what was computed on each extent: the AUC, the
@@ -205,7 +217,28 @@ func methodsInference(b *strings.Builder, r *Results) {
 	s, st := r.Sensitivity, r.Settings
 	models := s.ModelNames
 	fmt.Fprintf(b, " The cells of an extent are its whole background, not a sample of it, so the only sampling variation is that of the test records. For AUC we used each test record's placement (the share of the extent's area scoring below it, ties counted half; the AUC is their mean) and the standard error sqrt(Σ(V_i − AUC)²/(n(n − 1))), the presence component of the variance of DeLong et al. (1988); their full variance, treating cells as a sample, is reported for the unweighted AUC in results.json.")
-	fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resample%s of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993). Where the test records differ, the change of test set is reported separately.", pairedWhat(s), st.PairedResamples, Plural(st.PairedResamples))
+	one := len(s.ScoredExtents) < 2
+	if what := pairedWhat(s); what != "" {
+		fmt.Fprintf(b, " %s were taken on the test records both sides hold (paired): for AUC from the placements with a Student t 95%% interval (n − 1 degrees of freedom for n common test records; Student 1908), for the other scores from %d full-size resample%s of the test records drawn once from the seed and shared by every model and extent, as the 2.5th to 97.5th percentiles of the resampled differences (Efron & Tibshirani 1993).", what, st.PairedResamples, Plural(st.PairedResamples))
+		if !one {
+			b.WriteString(" Where the test records differ, the change of test set is reported separately.")
+		}
+	}
+	if one {
+		// Nothing was compared across extents: the verdicts, the
+		// tolerances they use and the descriptions across extents were
+		// not made, and the methods must not say they were.
+		if len(s.ScoredExtents) == 0 {
+			b.WriteString(" No extent could be scored, so no score was compared or judged.\n\n")
+			return
+		}
+		b.WriteString(" With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.")
+		if len(models) >= 2 {
+			b.WriteString(" Models were compared by their paired differences on that extent.")
+		}
+		b.WriteString("\n\n")
+		return
+	}
 	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
@@ -404,18 +437,29 @@ func bootstrapNote(st Settings) string {
 }
 
 // pairedWhat names the paired differences the run formed: between the
-// extents of one model always, between models on one extent only when
-// there are two models or more, and between a model and a null when a
-// null was scored.
+// extents of one model when two extents or more are scored, between
+// models on one extent only when there are two models or more, and
+// between a model and a null when a null was scored; "" when none.
 func pairedWhat(s *Sensitivity) string {
-	parts := []string{"between extents of one model"}
+	var parts []string
+	if len(s.ScoredExtents) == 0 {
+		return "" // nothing scored, nothing compared
+	}
+	if len(s.ScoredExtents) >= 2 {
+		// With one scored extent there is no other to take a
+		// difference from.
+		parts = append(parts, "between extents of one model")
+	}
 	if len(s.ModelNames) >= 2 {
 		parts = append(parts, "between models on one extent")
 	}
 	if len(s.AboveNull) > 0 {
 		parts = append(parts, "between a model and a null on one extent")
 	}
-	if len(parts) == 1 {
+	switch len(parts) {
+	case 0:
+		return ""
+	case 1:
 		return "Differences " + parts[0]
 	}
 	return "Differences " + parts[0] + ", and " + strings.Join(parts[1:], " or ") + ","
@@ -497,7 +541,7 @@ func resultNumbers(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			out += fmt.Sprintf(" By AUC, %s and %s scored the same on %s (every paired difference 0).", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			out += fmt.Sprintf(" By AUC, %s was better than %s beyond noise on %d of %d extent%s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rk.WithinNoise)
+			out += " " + methodsRankingText(rk)
 		}
 	}
 	if s.Independence.Defined {
@@ -628,7 +672,7 @@ func reviewerText(r *Results) string {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
-			fmt.Fprintf(&b, "By AUC, %s scored above %s beyond noise on %d of %d extent%s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, Plural(rk.Extents), rk.Worse, rankingOrderText(rk))
+			b.WriteString(reviewerRankingText(rk))
 		}
 	}
 	b.WriteString(reviewerNullText(s))
@@ -793,7 +837,9 @@ func aucAnswer(s *Sensitivity) string {
 	}
 	switch v.Verdict {
 	case JudgementRobust:
-		return "Within our tolerance, the AUC did not depend on which of these extents it was computed on. "
+		// "our tolerance" only when it is our default: a tolerance the
+		// user set is named as theirs, with its value (toleranceText).
+		return fmt.Sprintf("Within %s, the AUC did not depend on which of these extents it was computed on. ", toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: v.Tolerance}))
 	case JudgementSensitive:
 		var parts []string
 		for _, m := range s.ModelNames {
@@ -813,6 +859,38 @@ func aucAnswer(s *Sensitivity) string {
 		return fmt.Sprintf("The value of AUC is therefore a property of the model and the extent together: %s%s. ", joinList(parts), each)
 	}
 	return ""
+}
+
+// methodsRankingText is the results' sentence on one AUC model
+// comparison: the model better beyond noise on more extents first, and
+// "differed beyond noise on none" when neither is better anywhere ("a was
+// better than b on 0 of 9 extents" is true but reads as a finding).
+func methodsRankingText(rk ModelRanking) string {
+	rk = rk.leaderFirst()
+	if rk.Better == 0 {
+		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s.", rk.Model, rk.Other, anyCompared(rk.Extents))
+	}
+	return fmt.Sprintf("By AUC, %s was better than %s beyond noise on %d of %d %s, worse on %d and within noise on %d.", rk.Model, rk.Other, rk.Better, rk.Extents, rk.extentsWord(), rk.Worse, rk.WithinNoise)
+}
+
+// anyCompared is "any of the 9 extents compared", or "the 1 extent
+// compared".
+func anyCompared(n int) string {
+	if n == 1 {
+		return "the 1 extent compared"
+	}
+	return fmt.Sprintf("any of the %d extents compared", n)
+}
+
+// reviewerRankingText is the reply's sentence on one AUC model
+// comparison, worded as methodsRankingText chooses, with whether their
+// order held (rankingOrderText).
+func reviewerRankingText(rk ModelRanking) string {
+	rk = rk.leaderFirst()
+	if rk.Better == 0 {
+		return fmt.Sprintf("By AUC, %s and %s did not differ beyond noise on %s. ", rk.Model, rk.Other, anyCompared(rk.Extents))
+	}
+	return fmt.Sprintf("By AUC, %s scored above %s beyond noise on %d of %d %s and below it on %d%s. ", rk.Model, rk.Other, rk.Better, rk.Extents, rk.extentsWord(), rk.Worse, rankingOrderText(rk))
 }
 
 // rankingOrderText says, after an AUC model comparison counted over the
@@ -908,7 +986,12 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 		if len(n.same) > 0 {
 			// Every placement equal to the null's: a copy of it.
-			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent it shows nothing beyond %s. ", on, aucOf(n.same), n.name, holds)
+			// "it shows" for one model, "they show" for several.
+			shows := "it shows"
+			if len(n.same) > 1 {
+				shows = "they show"
+			}
+			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent %s nothing beyond %s. ", on, aucOf(n.same), n.name, shows, holds)
 		}
 		if len(n.below) > 0 {
 			// Wholly below 0: the null ranks the test records better.

@@ -113,6 +113,19 @@ const sortingBiasNote = "Spatial sorting bias (Hijmans 2012, Ecology 93:679-688)
 	"separates them: the distance-only null's AUC on the same extent shows how far that carries. A description, not a test. " +
 	"The cells' median is read from bins 0.1% wide."
 
+// sortingBiasNoteFor is sortingBiasNote, with what a ratio above 1 means
+// when some extent of r has one (test points all along the far edge of
+// the region, say): the note read only values below 1, leaving a table of
+// ratios up to 2.5 unexplained.
+func sortingBiasNoteFor(r *Results) string {
+	for _, e := range r.Extents {
+		if sb := e.SortingBias; sb != nil && sb.Defined && (sb.RatioMean > 1 || sb.RatioMedian > 1) {
+			return sortingBiasNote + " A ratio above 1 means the test points lie farther from the training points than the extent's cells do, by that measure (mean or median)."
+		}
+	}
+	return sortingBiasNote
+}
+
 // nullSentences describes the nulls and the sorting bias for methods.md:
 // each null's AUC on the base extent beside the models', its range across
 // extents, the paired difference of each model and null with its interval

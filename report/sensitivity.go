@@ -323,6 +323,10 @@ type ModelVerdict struct {
 	// Undefined lists extents where the difference could not be formed.
 	Undefined []string `json:"undefined_on"`
 	Sentence  string   `json:"sentence"`
+	// baseScored tells that the model is scored on the base extent (the
+	// metric may still be undefined there, BaseDefined): "not scored on
+	// base" would be wrong for a score undefined on its one extent.
+	baseScored bool
 }
 
 // Verdict sums up the ModelVerdicts of one metric: extent-sensitive when

@@ -56,6 +56,9 @@ type teachPayload struct {
 	// Base is the extent every difference is taken from (the base
 	// extent, or the one standing in for it).
 	Base string `json:"base_extent"`
+	// BaseWord names Base in the explorer's sentence: "the base extent",
+	// or "the reference extent" when another stands in for it.
+	BaseWord string `json:"base_word"`
 	// Bootstrap names the partial ROC bootstrap whose percentiles the
 	// explorer quotes (bootstrapName: "the published bootstrap" only
 	// when it draws 50%).
@@ -80,7 +83,7 @@ func teachData(r *Results) ([]byte, error) {
 	if len(r.Settings.E) > 0 {
 		pl.E = r.Settings.E[0]
 	}
-	pl.Base, pl.Bootstrap = s.BaseExtent, bootstrapName(r.Settings)
+	pl.Base, pl.BaseWord, pl.Bootstrap = s.BaseExtent, referenceWord(s), bootstrapName(r.Settings)
 	for _, e := range rocExtents(r) {
 		pl.Extents = append(pl.Extents, teachExtent{ID: e.ID, Kind: e.Kind, Params: e.Params, AreaKm2: e.AreaKm2, Area: fmtArea(e.AreaKm2)})
 		if e.ID == vocab.BaseID {

@@ -161,6 +161,7 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		return mv
 	}
 	var baseOK bool
+	mv.baseScored = true
 	mv.BaseValue, baseOK, _, _, _, _ = metricValue(m, bs)
 	mv.BaseDefined = baseOK
 	outside := a.diffsFromBase(m, model, &mv)
@@ -209,9 +210,17 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 			where = "the reference extent " + a.base
 		}
 		mv.Sentence = fmt.Sprintf("%s: scored on %s only, so there is nothing to compare.", name, where)
+		if !baseOK {
+			// The model is scored there, but this metric is undefined:
+			// "scored on base only" would suggest a value to read.
+			mv.Sentence = fmt.Sprintf("%s: undefined on %s%s, the only extent it is scored on, so there is nothing to compare.", name, where, undefinedWhy(m, bs))
+		}
 		return
 	case mv.Largest < 0:
 		why := "no paired difference from " + a.base + " could be formed"
+		if n, ok := mv.fewCommon(); ok {
+			why += fmt.Sprintf(": it shares at most %d test point%s with any other extent", n, Plural(n))
+		}
 		if !baseOK {
 			why = fmt.Sprintf("it is undefined on %s, %s%s", a.base, baseWord(a.base), undefinedWhy(m, bs))
 		}
@@ -287,6 +296,20 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	}
 }
 
+// fewCommon reports, for a verdict with no difference formed, whether
+// each difference failed for want of common test points (a paired record
+// on fewer than 2), and the most that any other extent shares with the
+// base extent; ok is false when some other reason may apply.
+func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
+	for _, d := range mv.Diffs {
+		if d.Defined || d.Method == "" || d.CommonPoints >= 2 {
+			return 0, false
+		}
+		most = max(most, d.CommonPoints)
+	}
+	return most, len(mv.Diffs) > 0
+}
+
 // boyceDescription describes, without judging, the Boyce index of a
 // model (name: "Boyce index of M") across extents by its differences from
 // base in mv: the largest, and on how many extents a difference lies
@@ -306,8 +329,13 @@ func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
 	if big.Diff == 0 {
 		largest = "every one is 0"
 	}
-	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d lie beyond ±%s and %s.",
-		name, BoyceCoverage, base, beyond, defined, fmtG(tol), largest)
+	// "1 of 10 lies", "3 of 10 lie": the verb follows the count beyond.
+	lie := "lie"
+	if beyond == 1 {
+		lie = "lies"
+	}
+	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d %s beyond ±%s and %s.",
+		name, BoyceCoverage, base, beyond, defined, lie, fmtG(tol), largest)
 }
 
 // toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
@@ -556,12 +584,37 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	}
 	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
 	if m.Kind == MetricBoyce {
-		v.Sentence = fmt.Sprintf("%s: described, not judged, for every model (its paired intervals fall short of their 95%% coverage: %s in our simulation check).", upperFirst(m.Label), BoyceCoverage)
+		v.Sentence = boyceVerdictSentence(m, mvs, from)
 	}
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
 	}
 	return v
+}
+
+// boyceVerdictSentence sums up the Boyce index over the models of mvs:
+// described, not judged, for those with a difference from the base
+// extent (from names it), and named apart those with none (undefined or
+// not scored on the base extent, or alone on it), for which "described
+// for every model" would claim a description that is not there.
+func boyceVerdictSentence(m MetricInfo, mvs []ModelVerdict, from string) string {
+	var described, none []string
+	for _, mv := range mvs {
+		if mv.Largest >= 0 {
+			described = append(described, mv.Model)
+		} else {
+			none = append(none, mv.Model)
+		}
+	}
+	why := fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
+	switch {
+	case len(none) == 0:
+		return fmt.Sprintf("%s: described, not judged, for every model (%s).", upperFirst(m.Label), why)
+	case len(described) == 0:
+		return fmt.Sprintf("%s: no difference from %s could be formed for any model (each model's sentence says why).", upperFirst(m.Label), from)
+	}
+	return fmt.Sprintf("%s: described, not judged, for %s (%s); no difference from %s could be formed for %s.",
+		upperFirst(m.Label), joinList(described), why, from, joinList(none))
 }
 
 // rankings compares every pair of models on metric m extent by extent.
@@ -612,9 +665,18 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
+			case r.Better == 0 && r.Worse == 0:
+				// "a is better than b on 0 of n" is true but reads as a
+				// finding.
+				r.Sentence = fmt.Sprintf("%s: %s and %s differ beyond noise on none of %d extent%s (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, r.Extents, Plural(r.Extents))
+				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			default:
+				// The model ahead first, as in the headline; the table
+				// keeps Model minus Other.
+				lead := r.leaderFirst()
 				r.Sentence = fmt.Sprintf("%s: %s is better than %s beyond noise on %d of %d extent%s, worse on %d, within noise on %d (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Better, r.Extents, Plural(r.Extents), r.Worse, r.WithinNoise)
+					upperFirst(m.Label), lead.Model, lead.Other, lead.Better, r.Extents, Plural(r.Extents), lead.Worse, r.WithinNoise)
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			}
 			out = append(out, r)

@@ -159,7 +159,7 @@
       } else {
         if (c.x.length) { el("polyline", { points: pts(c), fill: "none", stroke: "#000", "stroke-width": 2.4 }); }
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
-        sent.textContent = "On " + eid + (eid === data.base_extent ? ", the base extent" : "") + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + " test points) " + who(m) +
+        sent.textContent = "On " + eid + (eid === data.base_extent ? ", " + data.base_word : "") + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + (c.test_points === 1 ? " test point) " : " test points) ") + who(m) +
           " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model or null on the other extents" +
           (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
         row("extent area", ext.area + " km²");

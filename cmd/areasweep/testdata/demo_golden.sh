@@ -133,6 +133,17 @@
 #     a rasterization of those units with GDAL (cell centres, valid cells
 #     of good) confirms cell for cell; its scores and what derives from
 #     them moved; every other extent is unchanged);
+#   - rewritten on branch hA of 2026-12-04 (a model comparison's sentence
+#     leads with the model better beyond noise on more extents, as the
+#     headline does: the demo's omission at the 10th percentile said "good
+#     is better than coarse beyond noise on 0 of 13 extents, worse on 12",
+#     now "coarse is better than good beyond noise on 12 of 13 extents,
+#     worse on 0"; that sentence of results.json only, every number and
+#     scores.csv unchanged);
+#   - rewritten again on branch hA (a decomposition of a score equal for
+#     every model and extent opens with a capital: the demo's "omission at
+#     minimum training presence is identical ..." now "Omission at ...";
+#     that sentence only);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -325,13 +325,13 @@ func (s *Study) Stream(ctx context.Context, p *Plan) (*Sums, error) {
 		how += fmt.Sprintf(" in grid rows %d to %d only", s.rows.First, s.rows.End-1)
 	}
 	n := p.src.BlocksIn(s.rows) // a shard's pass reads only the blocks meeting its rows
-	blocks := fmt.Sprintf("block by block (%d blocks)", n)
+	blocks := blocksText(n, 0)
 	if r, ok := p.src.(*pass.Raster); ok && r.Strips(s.rows) != "" {
 		blocks = r.Strips(s.rows)
 	} else if ok && r.Reused() > 0 {
-		blocks = fmt.Sprintf("block by block (%d blocks, %d of them decoded when the points were sampled)", n, r.Reused())
+		blocks = blocksText(n, r.Reused())
 	}
-	s.logf("%s: %s, %s, and added to the sums of all %d extents in %.2f s", m.Name, how, blocks, len(fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: %s, %s, and added to the sums of %s in %.2f s", m.Name, how, blocks, allExtentsText(len(fam.Members)), time.Since(t0).Seconds())
 	return &Sums{Accs: accs, Stats: stats, Valid: opt.Valid, Preview: opt.Preview}, nil
 }
 
@@ -356,3 +356,23 @@ func (s *Study) Grid() *extent.Grid { return s.grid }
 
 // Family is the run's extent family (clipped after the first pass).
 func (s *Study) Family() *extent.Family { return s.fam }
+
+// blocksText says how a pass read its source: "block by block (10
+// blocks, 7 of them decoded when the points were sampled)", "(1 block)"
+// for one ("1 blocks" was logged for the distance-only null of a small
+// grid).
+func blocksText(n, reused int) string {
+	out := fmt.Sprintf("block by block (%d block%s", n, report.Plural(n))
+	if reused > 0 {
+		out += fmt.Sprintf(", %d of them decoded when the points were sampled", reused)
+	}
+	return out + ")"
+}
+
+// allExtentsText is "all 12 extents", or "its 1 extent".
+func allExtentsText(n int) string {
+	if n == 1 {
+		return "its 1 extent"
+	}
+	return fmt.Sprintf("all %d extents", n)
+}

@@ -1,0 +1,484 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+	"testing"
+)
+
+// The tests in this file drive the sentence writers with the numbers of
+// studies that differ from the demo (a model worse than the null
+// everywhere, copies of the null, one scored extent, few test points),
+// each where a sentence once said other than its numbers. Expected
+// strings are the templates with the numbers filled in by hand.
+
+// TestBoyceBeyondCountAgrees: the Boyce description's count of
+// differences beyond the tolerance takes the verb of its number: "1 of 10
+// lies", "3 of 10 lie" ("1 of 10 lie beyond ±0.1" was written).
+func TestBoyceBeyondCountAgrees(t *testing.T) {
+	diff := func(ext string, d float64) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Diff: d}
+	}
+	cases := []struct {
+		name          string
+		diffs         []ExtentDifference
+		want, notWant string
+	}{
+		{"one beyond", []ExtentDifference{diff("a", -0.27), diff("b", 0.05)}, "1 of 2 lies beyond ±0.1 and the largest is -0.270 on a", "1 of 2 lie "},
+		{"two beyond", []ExtentDifference{diff("a", -0.27), diff("b", 0.15)}, "2 of 2 lie beyond ±0.1", "lies"},
+		{"none beyond", []ExtentDifference{diff("a", 0.02), diff("b", 0.05)}, "0 of 2 lie beyond ±0.1", "lies"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			mv := &ModelVerdict{Diffs: c.diffs, Largest: 0}
+			got := boyceDescription("Boyce index of m", "base", mv, 0.1)
+			checkWords(t, "Boyce", got, []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// sameAsNull is a Sensitivity whose models each score as the null n on
+// the base extent (every difference and its interval 0), as a model
+// passed both as --model and as --null does.
+func sameAsNull(models ...string) *Sensitivity {
+	s := &Sensitivity{BaseExtent: "base"}
+	for _, m := range models {
+		s.AboveNull = append(s.AboveNull, AboveNull{Metric: "auc", Model: m, Null: "twin", NullKind: "user", BaseExtent: "base",
+			BaseReading: ReadingNotAbove, Defined: 1, NotAbove: 1,
+			Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 48, Method: "placements", ModelValue: 0.726, NullValue: 0.726, Reading: ReadingNotAbove}}})
+	}
+	return s
+}
+
+// TestReplySameAsNullAgrees: the reply's sentence on models that score as
+// a null agrees with their number: "it shows" for one, "they show" for
+// several ("the AUCs of m and m2 are the same as that of twin ..., so on
+// that extent it shows nothing" was written).
+func TestReplySameAsNullAgrees(t *testing.T) {
+	cases := []struct {
+		models        []string
+		want, notWant string
+	}{
+		{[]string{"m"}, "the AUC of m is the same as that of twin (difference and interval 0), so on that extent it shows nothing beyond what twin holds", "they show"},
+		{[]string{"m", "m2"}, "the AUCs of m and m2 are the same as that of twin (difference and interval 0), so on that extent they show nothing beyond what twin holds", "it shows"},
+	}
+	for _, c := range cases {
+		checkWords(t, "reply", reviewerNullText(sameAsNull(c.models...)), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestUndefinedOnItsOnlyExtent: a metric undefined on the base extent
+// when the model is scored there and nowhere else (a partial ROC ratio
+// whose 1 − E crossing falls among tied test points, in a family of one
+// extent) is "undefined on base", not "not scored on base" (the model is
+// scored there) nor "scored on base only" (which suggests a value).
+func TestUndefinedOnItsOnlyExtent(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base")
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	for i := range r.Scores {
+		if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+			for j := range sc.PartialROC {
+				sc.PartialROC[j].Defined, sc.PartialROC[j].Reason = false, "the 1 - E crossing falls among test points tied at one value"
+			}
+		}
+	}
+	s := analyzed(t, r)
+	cases := []struct {
+		name, model   string
+		want, notWant []string
+	}{
+		{"undefined there", "good",
+			[]string{"undetermined (undefined on base, its only scored extent)",
+				"undefined on the base extent base (the 1 - E crossing falls among test points tied at one value), the only extent it is scored on, so there is nothing to compare."},
+			[]string{"not scored on base", "scored on the base extent base only"}},
+		{"defined there", "broad",
+			[]string{"undetermined (scored on base only)", "scored on the base extent base only, so there is nothing to compare."},
+			[]string{"undefined on"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			mv := s.findModelVerdict(key, c.model)
+			if mv == nil {
+				t.Fatalf("no partial ROC verdict of %s", c.model)
+			}
+			checkWords(t, "phrase and sentence", verdictPhrase(mv)+"\n"+mv.Sentence, c.want, c.notWant)
+		})
+	}
+}
+
+// TestRankingLeaderFirst: the methods' results and the reply lead an AUC
+// model comparison with the model better beyond noise on more extents,
+// as the headline does, and say "did not differ" when neither is better
+// anywhere ("worse was better than truth beyond noise on 0 of 11 extents,
+// worse on 11" and "a scored above b beyond noise on 0 of 9 extents" were
+// written: true, but read as findings).
+func TestRankingLeaderFirst(t *testing.T) {
+	cases := []struct {
+		name           string
+		rk             ModelRanking
+		methods, reply string
+		notWant        []string
+	}{
+		{"second ahead everywhere", ModelRanking{Model: "worse", Other: "truth", Extents: 11, Worse: 11, Diffs: make([]ExtentDifference, 11)},
+			"By AUC, truth was better than worse beyond noise on 11 of 11 extents, worse on 0 and within noise on 0.",
+			"By AUC, truth scored above worse beyond noise on 11 of 11 extents and below it on 0, so their order held on every extent. ",
+			[]string{"worse was better", "worse scored above"}},
+		{"second ahead on some", ModelRanking{Model: "a", Other: "b", Extents: 6, Better: 1, Worse: 4, WithinNoise: 1, Diffs: make([]ExtentDifference, 6)},
+			"By AUC, b was better than a beyond noise on 4 of 6 extents, worse on 1 and within noise on 1.",
+			"By AUC, b scored above a beyond noise on 4 of 6 extents and below it on 1, so their order depends on the extent. ",
+			[]string{"a was better", "a scored above"}},
+		{"first ahead", ModelRanking{Model: "a", Other: "b", Extents: 11, Better: 7, WithinNoise: 4, Diffs: make([]ExtentDifference, 11)},
+			"By AUC, a was better than b beyond noise on 7 of 11 extents, worse on 0 and within noise on 4.",
+			"By AUC, a scored above b beyond noise on 7 of 11 extents and below it on 0, so their order did not reverse beyond noise on any extent. ",
+			nil},
+		{"neither", ModelRanking{Model: "a", Other: "b", Extents: 9, WithinNoise: 9, Diffs: make([]ExtentDifference, 10)},
+			"By AUC, a and b did not differ beyond noise on any of the 9 extents compared.",
+			"By AUC, a and b did not differ beyond noise on any of the 9 extents compared. ",
+			[]string{"on 0 of 9"}},
+		{"neither, one extent", ModelRanking{Model: "a", Other: "b", Extents: 1, WithinNoise: 1, Diffs: make([]ExtentDifference, 1)},
+			"By AUC, a and b did not differ beyond noise on the 1 extent compared.",
+			"By AUC, a and b did not differ beyond noise on the 1 extent compared. ",
+			[]string{"any of the 1"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if got := methodsRankingText(c.rk); got != c.methods {
+				t.Errorf("methods: %q\nwant     %q", got, c.methods)
+			}
+			if got := reviewerRankingText(c.rk); got != c.reply {
+				t.Errorf("reply: %q\nwant   %q", got, c.reply)
+			}
+			checkWords(t, "methods and reply", methodsRankingText(c.rk)+reviewerRankingText(c.rk), nil, c.notWant)
+		})
+	}
+}
+
+// TestAnalysisRankingLeaderFirst: the Analysis sentence on two models
+// leads with the one better beyond noise on more extents, and says "differ
+// beyond noise on none" when neither is better anywhere ("AUC: worse is
+// better than truth beyond noise on 0 of 11 extents, worse on 11" was
+// written). The counts come from the ranking itself.
+func TestAnalysisRankingLeaderFirst(t *testing.T) {
+	cases := []struct {
+		name          string
+		diff, lo, hi  float64
+		want, notWant string
+	}{
+		{"second ahead", -0.05, -0.08, -0.02, "AUC: truncated is better than good beyond noise on %d of %d extents, worse on 0, within noise on 0", "good is better"},
+		{"neither", 0.01, -0.02, 0.04, "AUC: good and truncated differ beyond noise on none of %[2]d extents (paired differences, 95%% intervals).", "is better than"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" && p.Defined {
+					p.Diff, p.Low, p.High = c.diff, c.lo, c.hi
+				}
+			}
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric == "auc" && rk.Model == "good" && rk.Other == "truncated" {
+					if rk.Extents < 2 {
+						t.Fatalf("too few extents compared: %+v", rk)
+					}
+					checkWords(t, "ranking", rk.Sentence, []string{fmt.Sprintf(c.want, rk.Extents, rk.Extents)}, []string{c.notWant})
+					return
+				}
+			}
+			t.Fatal("no AUC comparison of good and truncated")
+		})
+	}
+}
+
+// TestBoyceVerdictNamesUndescribed: the Boyce index's summary line says
+// "described, not judged, for every model" only when every model has a
+// difference from the base extent; a model whose index is undefined on
+// the base extent (too few windows with background area, as a model that
+// is 1 on the test cells and 0 elsewhere gives) is named apart ("Boyce
+// index: described, not judged, for every model" was written beside
+// "Boyce index of flat: undetermined, it is undefined on base").
+func TestBoyceVerdictNamesUndescribed(t *testing.T) {
+	m := MetricInfo{Key: MetricKeyBoyce, Kind: MetricBoyce, Label: "Boyce index", Tolerance: 0.1}
+	described := ModelVerdict{Model: "truth", Base: "base", Largest: 0, Diffs: []ExtentDifference{{Extent: "hull", Defined: true, Diff: -0.15}}}
+	undefined := ModelVerdict{Model: "flat", Base: "base", Largest: -1, Diffs: []ExtentDifference{{Extent: "hull"}}}
+	cases := []struct {
+		name          string
+		mvs           []ModelVerdict
+		want, notWant string
+	}{
+		{"all described", []ModelVerdict{described, described}, "Boyce index: described, not judged, for every model (its paired intervals", "could be formed"},
+		{"one undefined", []ModelVerdict{undefined, described},
+			"Boyce index: described, not judged, for truth (its paired intervals fall short of their 95% coverage: " + BoyceCoverage + " in our simulation check); no difference from the base extent could be formed for flat.",
+			"every model"},
+		{"none described", []ModelVerdict{undefined, undefined}, "Boyce index: no difference from the base extent could be formed for any model", "described, not judged"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "Boyce verdict", verdictFor(m, c.mvs).Sentence, []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// TestDecompositionIdenticalCapitalised: a score equal for every model on
+// every extent (an omission rate of 0 throughout, as a model that ranks
+// every test point above its cut gives) opens its decomposition sentence
+// with a capital ("omission at minimum training presence is identical
+// ..." was written).
+func TestDecompositionIdenticalCapitalised(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		for j := range r.Scores[i].Thresholds {
+			r.Scores[i].Thresholds[j].Omission = 0
+		}
+	}
+	s := analyzed(t, r)
+	n := 0
+	for _, d := range s.Decompositions {
+		if strings.Contains(d.Sentence, "is identical for every model and extent") {
+			n++
+			checkWords(t, "decomposition", d.Sentence, []string{"Omission at "}, []string{"omission at"})
+		}
+	}
+	if n == 0 {
+		t.Fatal("no decomposition says its score is identical for every model and extent")
+	}
+}
+
+// TestUndeterminedPhraseSaysWhy: the headline's and the results' phrase
+// for an undetermined verdict whose largest difference has an interval
+// within the tolerance says what leaves it undetermined; quoted alone,
+// that interval reads as a robust verdict ("undetermined (largest
+// difference from base +0.040 on a, 95% interval +0.035 to +0.045)" was
+// written, with ±0.05).
+func TestUndeterminedPhraseSaysWhy(t *testing.T) {
+	inside := ExtentDifference{Extent: "a", Defined: true, Method: "placements", Diff: 0.04, Low: 0.035, High: 0.045, Position: "inside"}
+	wide := ExtentDifference{Extent: "b", Defined: true, Method: "placements", Diff: 0.01, Low: -0.06, High: 0.08, Position: "overlapping"}
+	few := ExtentDifference{Extent: "c", Defined: true, Method: "placements", CommonPoints: 6, Diff: 0.01, Low: -0.2, High: 0.2, Position: positionTooFew, minPoints: 10}
+	undef := ExtentDifference{Extent: "d"}
+	mk := func(v Judgement, ds ...ExtentDifference) *ModelVerdict {
+		mv := &ModelVerdict{Verdict: v, Base: "base", Tolerance: 0.05, Largest: 0, Diffs: ds}
+		for _, d := range ds {
+			if !d.Defined {
+				mv.Undefined = append(mv.Undefined, d.Extent)
+			}
+		}
+		return mv
+	}
+	head := "(largest difference from base +0.040 on a, 95% interval +0.035 to +0.045"
+	cases := []struct {
+		name string
+		mv   *ModelVerdict
+		want string
+	}{
+		{"straddles elsewhere", mk(JudgementUndetermined, inside, wide),
+			head + "; the 95% interval straddles ±0.05 on 1 of 2 extents, reaching furthest beyond it with +0.010 on b (95% interval -0.060 to +0.080))"},
+		{"undefined elsewhere", mk(JudgementUndetermined, inside, undef), head + "; no difference could be formed on d)"},
+		{"not judged elsewhere", mk(JudgementUndetermined, inside, few), head + "; not judged on 1 extent: too few common test points)"},
+		{"robust", mk(JudgementRobust, inside), head + ")"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "phrase", verdictPhrase(c.mv), []string{c.want}, nil)
+		})
+	}
+}
+
+// TestAboveNullUndefinedSaysOnHowFew: a model-minus-null difference that
+// could not be formed on the base extent because the two share fewer than
+// 2 test points says so (a study with 2 test points, 1 of them on base,
+// gave "On base, AUC of good minus distance_null (distance-only null)
+// could not be formed." and no reason).
+func TestAboveNullUndefinedSaysOnHowFew(t *testing.T) {
+	r := &Results{}
+	m := MetricInfo{Key: "auc", Kind: MetricAUC, Label: "AUC"}
+	cases := []struct {
+		name          string
+		gap           NullGap
+		want, notWant string
+	}{
+		{"one common point", NullGap{Extent: "base", CommonPoints: 1}, "On base, AUC of good minus nul could not be formed: they share 1 test point.", "points"},
+		{"none", NullGap{Extent: "base", CommonPoints: 0}, "could not be formed: they share 0 test points.", ""},
+		{"undefined on more", NullGap{Extent: "base", CommonPoints: 30}, "On base, AUC of good minus nul could not be formed.", "share"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			an := &AboveNull{Metric: "auc", Model: "good", Null: "nul", BaseExtent: "base", BaseReading: ReadingUndefined, Gaps: []NullGap{c.gap}}
+			nw := []string{}
+			if c.notWant != "" {
+				nw = append(nw, c.notWant)
+			}
+			checkWords(t, "sentence", aboveNullSentence(r, m, an), []string{c.want}, nw)
+		})
+	}
+}
+
+// TestNoDifferenceSaysOnHowFew: an AUC verdict with no difference formed
+// because the base extent shares fewer than 2 test points with every
+// other extent says so, in its sentence and in the headline's phrase (a
+// study with 1 test point on base gave "undetermined, no paired difference
+// from base could be formed." and "undetermined (no difference could be
+// formed)" with no reason). A difference missing for another reason (no
+// paired record) keeps the plain words.
+func TestNoDifferenceSaysOnHowFew(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Paired {
+		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
+			p.Defined, p.CommonPoints = false, 1
+		}
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil || mv.Largest >= 0 {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	checkWords(t, "sentence", mv.Sentence, []string{"undetermined, no paired difference from base could be formed: it shares at most 1 test point with any other extent."}, nil)
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"undetermined (no difference could be formed: base shares at most 1 test point with any other extent)"}, nil)
+	plain := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", BaseDefined: true, Largest: -1, Diffs: []ExtentDifference{{Extent: "hull"}}}
+	checkWords(t, "phrase without a record", verdictPhrase(plain), []string{"undetermined (no difference could be formed)"}, []string{"shares"})
+}
+
+// TestRankingSaysCompared: when some extents both models are scored on
+// are left out of a comparison's count (too few common test points), the
+// count says "extents compared": "good and coarse differ beyond noise on
+// none of 9 extents" under "Across 10 evaluation extents" read as a
+// miscount (12 test points on one edge of the base region, 8 of them on
+// points_50km).
+func TestRankingSaysCompared(t *testing.T) {
+	cases := []struct {
+		name                     string
+		rk                       ModelRanking
+		headline, methods, reply string
+	}{
+		{"one left out", ModelRanking{Model: "a", Other: "b", Extents: 9, Better: 3, WithinNoise: 6, Diffs: make([]ExtentDifference, 10)},
+			"a is better than b beyond noise on 3 of 9 extents compared",
+			"By AUC, a was better than b beyond noise on 3 of 9 extents compared, worse on 0 and within noise on 6.",
+			"By AUC, a scored above b beyond noise on 3 of 9 extents compared and below it on 0"},
+		{"neither, one left out", ModelRanking{Model: "a", Other: "b", Extents: 9, WithinNoise: 9, Diffs: make([]ExtentDifference, 10)},
+			"a and b differ beyond noise on none of 9 extents compared", "", ""},
+		{"all counted", ModelRanking{Model: "a", Other: "b", Extents: 9, Better: 3, WithinNoise: 6, Diffs: make([]ExtentDifference, 9)},
+			"a is better than b beyond noise on 3 of 9 extents",
+			"By AUC, a was better than b beyond noise on 3 of 9 extents, worse on 0 and within noise on 6.",
+			"By AUC, a scored above b beyond noise on 3 of 9 extents and below it on 0"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if got := rankingClause(c.rk); got != c.headline {
+				t.Errorf("headline: %q\nwant      %q", got, c.headline)
+			}
+			if c.methods != "" {
+				checkWords(t, "methods", methodsRankingText(c.rk), []string{c.methods}, nil)
+				checkWords(t, "reply", reviewerRankingText(c.rk), []string{c.reply}, nil)
+			}
+		})
+	}
+}
+
+// TestMethodsOneExtentClaimsNoComparison: with one scored extent the
+// methods paragraph does not describe comparisons across extents that
+// were not made (it said "Differences between extents of one model ...
+// were taken", "We call a score robust to the extent when ..." and "we
+// report the spread of each score across extents, the split of the sums
+// of squares ..." for a family of 1 evaluation extent); with several it
+// still does.
+func TestMethodsOneExtentClaimsNoComparison(t *testing.T) {
+	across := []string{"Differences between extents of one model", "We call a score robust to the extent when", "the spread of each score across extents",
+		"Where the test records differ, the change of test set is reported separately", "The Boyce index's differences were described"}
+	t.Run("one extent", func(t *testing.T) {
+		r := loadSample(t)
+		onlyExtents(r, "base")
+		analyzed(t, r)
+		methods, _, _ := strings.Cut(methodsText(r), "Results: ")
+		checkWords(t, "methods", methods, []string{"With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.",
+			"Differences between models on one extent were taken on the test records both sides hold (paired)", "Models were compared by their paired differences on that extent."}, across)
+	})
+	t.Run("several extents", func(t *testing.T) {
+		r := analyzedSample(t)
+		methods, _, _ := strings.Cut(methodsText(r), "Results: ")
+		checkWords(t, "methods", methods, across[:4], []string{"With one scored extent"})
+	})
+}
+
+// TestTruncationQuotesTheFlaggedTie: the truncation sentence's "up to"
+// quotes the largest flagged tie of test points, not the longest last
+// segment of any curve: a model whose curve on one extent runs flat at
+// y = 1 over 0.824 of the area axis (background below every test point,
+// not flagged) and ties test points over 0.300 on another was said to
+// "share its lowest value with up to 0.824 of the area axis".
+func TestTruncationQuotesTheFlaggedTie(t *testing.T) {
+	a := &analysis{r: &Results{Settings: Settings{E: []float64{0.05}}}}
+	tc := &TruncationCheck{Model: "m", FloorShare: 0.5, FloorFlag: true, Flag: true, MaxJump: 0.824,
+		Tails: []TailJump{{Extent: "hull", YFrom: 0.8, Jump: 0.3}, {Extent: "base", YFrom: 0.9, Jump: 0.25}}}
+	checkWords(t, "truncation", a.truncationSentence(tc), []string{"on 2 extents test points share its lowest value with up to 0.300 of the area axis (flagged above 0.2)"}, []string{"0.824"})
+}
+
+// TestMethodsRecordsAllOf: the methods' count of extents holding every
+// test record names them as a person would: "both on 8 of the 11
+// extents" for 2 test records ("all 2 on ..." was written), "the one"
+// for 1, "all 60" otherwise.
+func TestMethodsRecordsAllOf(t *testing.T) {
+	cases := []struct {
+		test   int
+		counts []int
+		want   string
+	}{
+		{2, []int{1, 2, 2}, "the extents differ in their test records: both on 2 of the 3 extents; base 1."},
+		{1, []int{1, 0, 1}, "the extents differ in their test records: the one on 2 of the 3 extents; region 0."},
+		{60, []int{48, 60, 60}, "the extents differ in their test records: all 60 on 2 of the 3 extents; base 48."},
+	}
+	for _, c := range cases {
+		r := &Results{PointCounts: PointCounts{Train: 80, Test: c.test},
+			Sensitivity: &Sensitivity{BaseExtent: "base", ScoredExtents: []string{"base", "region", "hull"}, TestPoints: c.counts, TestPointsVary: true}}
+		var b strings.Builder
+		methodsRecords(&b, r)
+		checkWords(t, "records", b.String(), []string{c.want}, nil)
+	}
+}
+
+// TestSortingBiasNoteAboveOne: the sorting-bias note reads a ratio above
+// 1 when some extent has one (12 test points along the far edge of the
+// base region gave ratios up to 2.452 under a note that explained only
+// values below 1), and keeps to values below 1 otherwise.
+func TestSortingBiasNoteAboveOne(t *testing.T) {
+	above := "A ratio above 1 means the test points lie farther from the training points than the extent's cells do, by that measure (mean or median)."
+	for _, c := range []struct {
+		ratio float64
+		has   bool
+	}{{2.452, true}, {0.819, false}} {
+		r := &Results{Extents: []Extent{{ID: "base", SortingBias: &SortingBias{Defined: true, RatioMean: c.ratio, RatioMedian: c.ratio}}}}
+		if got := sortingBiasNoteFor(r); strings.Contains(got, above) != c.has || !strings.HasPrefix(got, sortingBiasNote) {
+			t.Errorf("ratio %g: %q", c.ratio, got)
+		}
+	}
+}
+
+// TestReplyRobustNamesTheTolerance: the reply's answer for an AUC robust
+// for every model names the tolerance with its value, as ours only when
+// it is our default ("Within our tolerance, ..." was written for a run
+// with --tolerance-auc 0.3).
+func TestReplyRobustNamesTheTolerance(t *testing.T) {
+	for _, c := range []struct {
+		tol           float64
+		want, notWant string
+	}{
+		{0.3, "Within the tolerance of ±0.3 set for this run, the AUC did not depend on which of these extents it was computed on.", "our tolerance"},
+		{DefaultToleranceAUC, "Within our tolerance of ±0.02, the AUC did not depend on which of these extents it was computed on.", "set for this run"},
+	} {
+		s := &Sensitivity{ScoredExtents: []string{"base", "hull"}, Verdicts: []Verdict{{Metric: "auc", Verdict: JudgementRobust, Tolerance: c.tol}}}
+		checkWords(t, "reply", aucAnswer(s), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestRobustPhraseEveryZero: a robust verdict whose differences are all 0
+// says so in the headline's and the results' phrase instead of naming
+// one extent as "the largest" ("robust (largest difference from base
+// +0.000 on hull, 95% interval +0.000 to +0.000)").
+func TestRobustPhraseEveryZero(t *testing.T) {
+	zero := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Method: "placements", Position: "inside"}
+	}
+	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Largest: 0, Diffs: []ExtentDifference{zero("hull"), zero("whole")}}
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (every difference from base is 0)"}, []string{"largest", "hull"})
+	mv.Diffs[1].Diff, mv.Diffs[1].Low, mv.Diffs[1].High, mv.Largest = 0.004, 0.001, 0.007, 1
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (largest difference from base +0.004 on whole, 95% interval +0.001 to +0.007)"}, nil)
+}
