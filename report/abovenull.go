@@ -392,6 +392,11 @@ func aboveNullHeadline(s *Sensitivity) string {
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			small, large := an.gapEnds()
 			part += fmt.Sprintf("; the gap moves from %s on %s %s to %s on %s %s", signed3(sm.Diff), an.SmallestExtent, small, signed3(lg.Diff), an.LargestExtent, large)
+			// How many extents put the model above and below the null:
+			// the ends alone can hide that it is below on most.
+			if read := an.Above + an.NotAbove + an.Below; read > 0 {
+				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.NotAbove, an.Below)
+			}
 		}
 		parts = append(parts, part)
 	}

@@ -246,7 +246,8 @@ func TestAboveNullBorderline(t *testing.T) {
 // TestHeadlineGapEnds: the headline's clause on how the model-minus-null
 // gap moves names its two extents as the smallest and the largest, as the
 // summary's sentence does, with the same numbers (the fixture's gap grows
-// by 0.01 per extent in family order, so the two ends differ).
+// by 0.01 per extent in family order, so the two ends differ), and how
+// many extents put the model above, within noise and below the null.
 func TestHeadlineGapEnds(t *testing.T) {
 	r := withNull(t)
 	r.Paired = append(r.Paired, nullPaired(r)...)
@@ -276,6 +277,19 @@ func TestHeadlineGapEnds(t *testing.T) {
 		if !strings.Contains(an.Sentence, fmt.Sprintf("from %s on %s (the smallest extent) to %s on %s (the largest)",
 			signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)) {
 			t.Errorf("the summary's sentence gives other ends: %s", an.Sentence)
+		}
+		// The counts of extents above, within noise and below: the ends
+		// alone could hide that the model is below the null on most.
+		read := an.Above + an.NotAbove + an.Below
+		if read == 0 {
+			t.Fatal("the fixture's gaps are read on no extent")
+		}
+		counts := fmt.Sprintf("good is above it beyond noise on %d of the %d extents read, within noise on %d and below on %d", an.Above, read, an.NotAbove, an.Below)
+		if !strings.Contains(s.Headline, counts) {
+			t.Errorf("headline lacks %q: %s", counts, s.Headline)
+		}
+		if !strings.Contains(an.Sentence, fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d", an.Above, an.NotAbove, an.Below)) {
+			t.Errorf("the summary's sentence gives other counts: %s", an.Sentence)
 		}
 		return
 	}

@@ -144,6 +144,12 @@
 #     every model and extent opens with a capital: the demo's "omission at
 #     minimum training presence is identical ..." now "Omission at ...";
 #     that sentence only);
+#   - rewritten at the end of the first round of 2026-12-04 (the
+#     headline's clause on each model against the null adds on how many
+#     extents it is above, within noise and below, as methods.md does:
+#     "good is above it beyond noise on 0 of the 13 extents read, within
+#     noise on 5 and below on 8"; results.json's sensitivity.headline
+#     only, every number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
