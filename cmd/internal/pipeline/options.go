@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"io"
+	"os"
 	"strings"
 	"sync"
 
@@ -43,12 +44,29 @@ type Options struct {
 // InputPaths lists every input file, for the check that --out holds none.
 func (o *Options) InputPaths() []string {
 	p := []string{o.Occurrences, o.Region, o.Ecoregions}
+	if crs := o.crsFile(); crs != "" {
+		p = append(p, crs)
+	}
 	for _, m := range append(append(append([]string{}, o.Models...), o.Nulls...), o.Extra...) {
 		if _, path, err := inputs.ParseNamedPath(m); err == nil {
 			p = append(p, path)
 		}
 	}
 	return p
+}
+
+// crsFile returns --occurrences-crs when it names a file (a .prj or WKT
+// file, which GDAL reads for the CRS), "" otherwise (an authority code,
+// a WKT or PROJ string): such a file is an input like the others, its
+// SHA-256 recorded and rechecked.
+func (o *Options) crsFile() string {
+	if o.OccurrencesCRS == "" {
+		return ""
+	}
+	if st, err := os.Stat(o.OccurrencesCRS); err != nil || !st.Mode().IsRegular() {
+		return ""
+	}
+	return o.OccurrencesCRS
 }
 
 // IO are the streams a run writes to besides its output folder.

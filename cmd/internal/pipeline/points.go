@@ -1044,7 +1044,11 @@ func (s *Study) inputFiles() []inputFile {
 		}
 		ins = append(ins, inputFile{role, m.Path, inputs.RasterSidecars})
 	}
-	ins = append(ins, inputFile{"occurrences", o.Occurrences, -1}, inputFile{"region", o.Region, inputs.VectorSidecars})
+	ins = append(ins, inputFile{"occurrences", o.Occurrences, -1})
+	if crs := o.crsFile(); crs != "" {
+		ins = append(ins, inputFile{"occurrences-crs", crs, -1})
+	}
+	ins = append(ins, inputFile{"region", o.Region, inputs.VectorSidecars})
 	if o.Ecoregions != "" {
 		ins = append(ins, inputFile{"ecoregions", o.Ecoregions, inputs.VectorSidecars})
 	}
