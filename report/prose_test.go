@@ -543,3 +543,71 @@ func TestAnalysisNotesNothingToCompare(t *testing.T) {
 		t.Error("two scored extents given the notes of one")
 	}
 }
+
+// TestNotComparableSaysWhy: a model comparison formed on no extent says
+// why ("good and broad cannot be compared on any extent." said nothing
+// more): one model's score, or both, undefined on every extent, or on
+// each extent one of the two undefined, or no paired difference formed
+// where both are defined. The sample's partial ROC ratio at E = 0.05 is
+// made undefined (scores and model pairs) where each case says.
+func TestNotComparableSaysWhy(t *testing.T) {
+	const key = "partial_roc_e0.05"
+	undefine := func(r *Results, model string, on func(ext string) bool) {
+		for i := range r.Scores {
+			if sc := &r.Scores[i]; sc.Model == model && on(sc.Extent) {
+				for j := range sc.PartialROC {
+					if sc.PartialROC[j].E == 0.05 {
+						sc.PartialROC[j].Defined = false
+					}
+				}
+			}
+		}
+	}
+	// Every difference of good and broad is undefined in every case.
+	unpair := func(r *Results) {
+		for i := range r.Paired {
+			if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindModel && (p.Model == "broad" || p.OtherModel == "broad") && (p.Model == "good" || p.OtherModel == "good") {
+				p.Defined = false
+			}
+		}
+	}
+	every := func(string) bool { return true }
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "one model undefined on every extent",
+			build: func(r *Results) { undefine(r, "broad", every) },
+			want:  []string{"Partial ROC ratio, E = 0.05: good and broad cannot be compared on any extent: broad's partial ROC ratio at E = 0.05 is undefined on every extent."}},
+		{name: "both undefined on every extent",
+			build: func(r *Results) { undefine(r, "broad", every); undefine(r, "good", every) },
+			want:  []string{"good and broad cannot be compared on any extent: good's and broad's partial ROC ratio at E = 0.05 are undefined on every extent."}},
+		{name: "each undefined where the other is defined",
+			build: func(r *Results) {
+				undefine(r, "broad", func(ext string) bool { return ext == "base" })
+				undefine(r, "good", func(ext string) bool { return ext != "base" })
+			},
+			want:    []string{"good and broad cannot be compared on any extent: on every extent that scores both, one of them is undefined."},
+			notWant: []string{"on every extent."}},
+		{name: "both defined, no difference formed",
+			build:   func(r *Results) {},
+			want:    []string{"good and broad cannot be compared on any extent: on every extent that scores both, one of them is undefined or no paired difference could be formed."},
+			notWant: []string{"on every extent."}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := liftResampled(loadSample(t))
+			c.build(r)
+			unpair(r)
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric == key && rk.Model == "good" && rk.Other == "broad" {
+					checkWords(t, "ranking", rk.Sentence, c.want, c.notWant)
+					return
+				}
+			}
+			t.Fatal("no comparison of good and broad")
+		})
+	}
+}

@@ -712,7 +712,9 @@ func TestRankingSentenceReasons(t *testing.T) {
 		want, notWant string
 	}{
 		{"undefined on every extent", func(p *Paired) { p.Defined = false },
-			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
+			// Only the paired records are undefined, both scores defined
+			// (TestNotComparableSaysWhy has the scores undefined).
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: on every extent that scores both, one of them is undefined or no paired difference could be formed.", "fewer than"},
 		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
 			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 30 test points (our cut-off).", ""},
 	}
