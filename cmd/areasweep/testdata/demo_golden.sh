@@ -155,6 +155,12 @@
 #     any extent." now ends "coarse's partial ROC ratio at E = 0.05 is
 #     undefined on every extent" (and at E = 0.1); those two sentences of
 #     results.json only, every number and scores.csv unchanged);
+#   - rewritten again on branch hE (the model-minus-null sentence ends
+#     "... below on 8. This describes the family of extents; it is not a
+#     test." instead of "... below on 8 (a description of this family of
+#     extents)", a second bracket after "(our cut-off)" when a count is
+#     not told; those sentences of results.json only, every number and
+#     scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
