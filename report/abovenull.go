@@ -242,7 +242,9 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		default:
 			counts = fmt.Sprintf("no gap is read: each rests on fewer than the %d common test points or the %d formed resamples we read a gap on (our cut-offs)", m.minCommonPoints(PairedKindNull), MinPercentileResamples)
 		}
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s (a description of this family of extents).",
+		// "This describes ..." as a sentence of its own: a bracket after
+		// the counts' "(our cut-off)" read as two brackets in a row.
+		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s. This describes the family of extents; it is not a test.",
 			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
 	}
 	return b.String()

@@ -6,6 +6,8 @@ import (
 	"math"
 	"slices"
 	"strings"
+
+	"areasweep/extent/vocab"
 )
 
 // textSection is one headed part of the summary's methods text, kept as
@@ -193,7 +195,11 @@ func (s *BatchSummary) effectSentence() string {
 		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
 	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, r.EffectPoints, Plural(r.EffectPoints))
+		return fmt.Sprintf("%s (study %s, model %s, extent %s%s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
+	}
+	lower := "AUC lower on the extent than on the base extent"
+	if slices.ContainsFunc(defined, func(r BatchRow) bool { return effectReference(r) != "" }) {
+		lower = "AUC lower on the extent than on its study's base extent, or on the reference extent that stands in for it"
 	}
 	fewText := ""
 	if few > 0 {
@@ -206,11 +212,22 @@ func (s *BatchSummary) effectSentence() string {
 	if zero > 0 {
 		zeroText = fmt.Sprintf(", %d zero", zero)
 	}
-	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (AUC lower on the extent than on the base extent, on their common test points)%s and %d positive, "+
+	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (%s, on their common test points)%s and %d positive, "+
 		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
 		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
 		"a description of these studies, not an estimate for others.",
-		where(lo), where(hi), neg, zeroText, pos, f3(med), len(defined), len(studies), ies(len(studies)), fewText)
+		where(lo), where(hi), neg, lower, zeroText, pos, f3(med), len(defined), len(studies), ies(len(studies)), fewText)
+}
+
+// effectReference names the extent a row's extent effect is taken from
+// when another extent stands in for its study's base extent (" against
+// the reference extent region_50km", as the study's own report names
+// it); "" when the base extent is the reference.
+func effectReference(r BatchRow) string {
+	if r.BaseExtent == "" || r.BaseExtent == vocab.BaseID {
+		return ""
+	}
+	return " against the reference extent " + r.BaseExtent
 }
 
 // testPointsSentence gives the span of the studies' test points on their
@@ -325,7 +342,7 @@ func (s *BatchSummary) standInSentence() string {
 	}
 	n := len(items)
 	return fmt.Sprintf("In %d stud%s the base extent could not be scored and the first scored extent is the reference for %s differences, test points and null comparison "+
-		"(\"base extent\" above and in summary.csv's base_extent means that extent for %s): %s.",
+		"(\"base extent\" in this summary and in summary.csv's base_extent means that extent for %s): %s.",
 		n, ies(n), map[bool]string{true: "its", false: "their"}[n == 1], map[bool]string{true: "it", false: "them"}[n == 1], joinList(items))
 }
 

@@ -760,3 +760,51 @@ func csvRecords(t *testing.T, write func(io.Writer) error) [][]string {
 	}
 	return recs
 }
+
+// TestEffectSentenceNamesReference: where another extent stands in for a
+// study's base extent (it held no test point), the summary's extent-effect
+// sentence names that reference extent, as the study's own report does,
+// rather than saying "lower on the extent than on the base extent" of a
+// difference not taken from it. Studies from oddBatch: nobase's m1 has
+// -0.16 on wide against region_50km (33 points), open's -0.03 (40
+// points), twin1's +0.005 (500 points).
+func TestEffectSentenceNamesReference(t *testing.T) {
+	odd := map[string]StudyResult{}
+	for _, st := range oddBatch() {
+		odd[st.ID] = st
+	}
+	cases := []struct {
+		name          string
+		studies       []string
+		want, notWant []string
+	}{
+		{name: "stand-in at the low end",
+			studies: []string{"nobase", "open", "twin1"},
+			want: []string{"-0.160 (study nobase, model m1, extent wide against the reference extent region_50km, on 33 common test points)",
+				"(AUC lower on the extent than on its study's base extent, or on the reference extent that stands in for it, on their common test points)",
+				"+0.005 (study twin1, model m1, extent wide, on 500 common test points)"}},
+		{name: "stand-in between the ends",
+			studies: []string{"few", "nobase", "twin1"},
+			want:    []string{"or on the reference extent that stands in for it"},
+			notWant: []string{"extent wide against"}},
+		{name: "no stand-in",
+			studies: []string{"open", "twin1"},
+			want:    []string{"(AUC lower on the extent than on the base extent, on their common test points)"},
+			notWant: []string{"reference extent"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var batch []StudyResult
+			for _, st := range oddBatch() {
+				if slices.Contains(c.studies, st.ID) {
+					batch = append(batch, st)
+				}
+			}
+			s, err := Summarize(batch)
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkWords(t, "effect sentence", s.effectSentence(), c.want, c.notWant)
+		})
+	}
+}

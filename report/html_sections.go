@@ -38,6 +38,42 @@ type analysisView struct {
 	Independence         *htmlTable
 	SortingBias          *notedTable
 	Omitted              htmlTable
+	// Lone, with fewer than two scored extents, holds the notes said in
+	// place of those explaining differences, spreads and sums of squares;
+	// nil otherwise.
+	Lone *loneNotes
+}
+
+// loneNotes are the Analysis notes of a family with fewer than two
+// scored extents. The notes that explain the differences, spread and
+// sums-of-squares tables describe a comparison across extents; with one
+// extent (or none) there is nothing to compare, as each verdict's
+// sentence says, and the notes say so too.
+type loneNotes struct {
+	Differences, Spread, Decomposition string
+}
+
+// loneExtentNotes returns the notes of a family with fewer than two
+// scored extents, naming the one extent scored; nil with two or more.
+func loneExtentNotes(s *Sensitivity) *loneNotes {
+	switch len(s.ScoredExtents) {
+	case 0:
+		const none = "No extent could be scored, so there is nothing to compare"
+		return &loneNotes{
+			Differences:   none + ": no score has a difference from another extent.",
+			Spread:        none + ": no score has a spread across extents.",
+			Decomposition: none + ": there are no sums of squares to split.",
+		}
+	case 1:
+		one := fmt.Sprintf("Only one extent, %s, could be scored, so there is nothing to compare", s.ScoredExtents[0])
+		return &loneNotes{
+			Differences: one + ": no score has another extent to take a difference from.",
+			Spread: one + fmt.Sprintf(": the table gives each score on %s alone, so its range is 0 and it has no SD across extents (that needs two).",
+				s.ScoredExtents[0]),
+			Decomposition: one + ": with no second extent there is no extent effect to split from the model effect, and no second order of the models for Kendall's W to compare.",
+		}
+	}
+	return nil
 }
 
 // sentencesTable is a list of sentences followed by a table.
@@ -98,6 +134,7 @@ func analysisSection(r *Results) analysisView {
 	v.AboveNull = aboveNullSection(r)
 	v.IndependenceSentence, v.Independence, v.SortingBias = independenceSection(r)
 	v.Omitted = omittedTable(s)
+	v.Lone = loneExtentNotes(s)
 	return v
 }
 

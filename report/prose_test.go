@@ -482,3 +482,132 @@ func TestRobustPhraseEveryZero(t *testing.T) {
 	mv.Diffs[1].Diff, mv.Diffs[1].Low, mv.Diffs[1].High, mv.Largest = 0.004, 0.001, 0.007, 1
 	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (largest difference from base +0.004 on whole, 95% interval +0.001 to +0.007)"}, nil)
 }
+
+// TestAnalysisNotesNothingToCompare: with one scored extent (or none) the
+// Analysis notes say there is nothing to compare, as each verdict's
+// sentence does, instead of explaining differences, spreads and sums of
+// squares across extents that the tables cannot hold (the page of a
+// family of one extent described "the score on every extent minus the
+// score on base" above an empty table). With two extents they still
+// explain the tables.
+func TestAnalysisNotesNothingToCompare(t *testing.T) {
+	explain := []string{"For each metric and model, the score on every extent minus the score on",
+		"A description of the chosen family: range and SD", "split into extent and model main effects"}
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "only the base extent",
+			build: func(r *Results) { onlyExtents(r, "base") },
+			want: []string{"Only one extent, base, could be scored, so there is nothing to compare: no score has another extent to take a difference from.",
+				"the table gives each score on base alone, so its range is 0 and it has no SD across extents",
+				"with no second extent there is no extent effect to split from the model effect"},
+			notWant: explain},
+		{name: "one extent standing in for the unscored base",
+			build: func(r *Results) {
+				onlyExtents(r, "base", "region_b50")
+				for i := range r.Scores {
+					if r.Scores[i].Extent == "base" {
+						r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+					}
+				}
+			},
+			want:    []string{"<h3>Difference from the reference extent</h3><p>Only one extent, region_b50, could be scored, so there is nothing to compare"},
+			notWant: explain},
+		{name: "two extents",
+			build:   func(r *Results) { onlyExtents(r, "base", "region_b50") },
+			want:    explain,
+			notWant: []string{"nothing to compare"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			c.build(r)
+			analyzed(t, r)
+			page, err := htmlPage(r, nil, "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			_, analysis, _ := strings.Cut(string(page), `<section id="analysis">`)
+			analysis, _, _ = strings.Cut(analysis, "</section>")
+			checkWords(t, "analysis", analysis, c.want, c.notWant)
+		})
+	}
+	// No extent scored: the notes' words, from the writer itself.
+	none := loneExtentNotes(&Sensitivity{})
+	for _, n := range []string{none.Differences, none.Spread, none.Decomposition} {
+		checkWords(t, "note", n, []string{"No extent could be scored, so there is nothing to compare"}, nil)
+	}
+	if loneExtentNotes(&Sensitivity{ScoredExtents: []string{"base", "hull"}}) != nil {
+		t.Error("two scored extents given the notes of one")
+	}
+}
+
+// TestNotComparableSaysWhy: a model comparison formed on no extent says
+// why ("good and broad cannot be compared on any extent." said nothing
+// more): one model's score, or both, undefined on every extent, or on
+// each extent one of the two undefined, or no paired difference formed
+// where both are defined. The sample's partial ROC ratio at E = 0.05 is
+// made undefined (scores and model pairs) where each case says.
+func TestNotComparableSaysWhy(t *testing.T) {
+	const key = "partial_roc_e0.05"
+	undefine := func(r *Results, model string, on func(ext string) bool) {
+		for i := range r.Scores {
+			if sc := &r.Scores[i]; sc.Model == model && on(sc.Extent) {
+				for j := range sc.PartialROC {
+					if sc.PartialROC[j].E == 0.05 {
+						sc.PartialROC[j].Defined = false
+					}
+				}
+			}
+		}
+	}
+	// Every difference of good and broad is undefined in every case.
+	unpair := func(r *Results) {
+		for i := range r.Paired {
+			if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindModel && (p.Model == "broad" || p.OtherModel == "broad") && (p.Model == "good" || p.OtherModel == "good") {
+				p.Defined = false
+			}
+		}
+	}
+	every := func(string) bool { return true }
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "one model undefined on every extent",
+			build: func(r *Results) { undefine(r, "broad", every) },
+			want:  []string{"Partial ROC ratio, E = 0.05: good and broad cannot be compared on any extent: broad's partial ROC ratio at E = 0.05 is undefined on every extent."}},
+		{name: "both undefined on every extent",
+			build: func(r *Results) { undefine(r, "broad", every); undefine(r, "good", every) },
+			want:  []string{"good and broad cannot be compared on any extent: good's and broad's partial ROC ratio at E = 0.05 are undefined on every extent."}},
+		{name: "each undefined where the other is defined",
+			build: func(r *Results) {
+				undefine(r, "broad", func(ext string) bool { return ext == "base" })
+				undefine(r, "good", func(ext string) bool { return ext != "base" })
+			},
+			want:    []string{"good and broad cannot be compared on any extent: on every extent that scores both, one of them is undefined."},
+			notWant: []string{"on every extent."}},
+		{name: "both defined, no difference formed",
+			build:   func(r *Results) {},
+			want:    []string{"good and broad cannot be compared on any extent: on every extent that scores both, one of them is undefined or no paired difference could be formed."},
+			notWant: []string{"on every extent."}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := liftResampled(loadSample(t))
+			c.build(r)
+			unpair(r)
+			s := analyzed(t, r)
+			for _, rk := range s.Rankings {
+				if rk.Metric == key && rk.Model == "good" && rk.Other == "broad" {
+					checkWords(t, "ranking", rk.Sentence, c.want, c.notWant)
+					return
+				}
+			}
+			t.Fatal("no comparison of good and broad")
+		})
+	}
+}

@@ -712,7 +712,9 @@ func TestRankingSentenceReasons(t *testing.T) {
 		want, notWant string
 	}{
 		{"undefined on every extent", func(p *Paired) { p.Defined = false },
-			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent.", "fewer than"},
+			// Only the paired records are undefined, both scores defined
+			// (TestNotComparableSaysWhy has the scores undefined).
+			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: on every extent that scores both, one of them is undefined or no paired difference could be formed.", "fewer than"},
 		{"too few common test points", func(p *Paired) { p.CommonPoints = 4 },
 			"Partial ROC ratio, E = 0.05: good and truncated cannot be compared on any extent: where both are defined they share fewer than 30 test points (our cut-off).", ""},
 	}
@@ -954,6 +956,8 @@ func checkWords(t *testing.T, what, text string, want, notWant []string) {
 // defined", not "the smallest extent"; an end resting on fewer than 10
 // common test points says so; and when no extent has 10, the counts of
 // "above, within, below" (all 0) give way to saying that no gap is read.
+// The sentence then says in words of its own that it describes the family
+// of extents, not a bracket after the cut-off's "(our cut-off)".
 func TestNullGapEndsNamed(t *testing.T) {
 	smallest := func(r *Results) string {
 		id, lo := "", math.Inf(1)
@@ -988,7 +992,7 @@ func TestNullGapEndsNamed(t *testing.T) {
 					}
 				}
 			},
-			want:    []string{"(the largest, on 8 common test points, not read)", "no extent has the 10 common test points we read a gap on (our cut-off)"},
+			want:    []string{"(the largest, on 8 common test points, not read)", "no extent has the 10 common test points we read a gap on (our cut-off). This describes the family of extents; it is not a test."},
 			notWant: []string{"above the null beyond noise on 0, within noise on 0 and below on 0"}},
 	}
 	for _, c := range cases {
@@ -1000,6 +1004,10 @@ func TestNullGapEndsNamed(t *testing.T) {
 			for _, an := range s.AboveNull {
 				if an.Metric == "auc" && an.Model == "good" {
 					checkWords(t, "sentence", an.Sentence, c.want, c.notWant)
+					// The family's gap is described, not tested, in words
+					// of its own: not a bracket after another bracket
+					// ("(our cut-off) (a description of ...)" was written).
+					checkWords(t, "sentence", an.Sentence, []string{"This describes the family of extents; it is not a test."}, []string{") ("})
 					checkWords(t, "headline", s.Headline, c.want[:1], c.notWant)
 					return
 				}
@@ -1373,7 +1381,8 @@ func TestRingPanelNamesNull(t *testing.T) {
 
 // TestTenPointCutoffOurs: every sentence that applies the 10-common-point
 // rule names it as our cut-off (the model comparisons, the note above
-// them, the gaps against a null, the methods).
+// them, the gaps against a null, the methods), the gap's without a second
+// bracket after it.
 func TestTenPointCutoffOurs(t *testing.T) {
 	r := withNull(t)
 	ps := nullPaired(r)
@@ -1388,7 +1397,7 @@ func TestTenPointCutoffOurs(t *testing.T) {
 	}
 	for _, an := range s.AboveNull {
 		if an.Metric == "auc" && an.Model == "good" {
-			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off)"}, nil)
+			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off). This describes the family of extents; it is not a test."}, []string{") ("})
 		}
 	}
 	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged"}, nil)

@@ -660,7 +660,7 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			case r.Extents == 0 && tooFewB > 0:
 				r.Sentence = fmt.Sprintf("%s: %s and %s are not compared on any extent: where both are defined, %s.", upperFirst(m.Label), ma, mb, notComparedWhy(tooFew, tooFewB, m.minCommonPoints(PairedKindModel)))
 			case r.Extents == 0:
-				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent.", upperFirst(m.Label), ma, mb)
+				r.Sentence = fmt.Sprintf("%s: %s and %s cannot be compared on any extent: %s.", upperFirst(m.Label), ma, mb, a.notComparableWhy(m, ma, mb, r.Diffs))
 			case r.identical():
 				r.Sentence = fmt.Sprintf("%s: %s and %s score the same on %s compared (every paired difference, and its interval, is 0).",
 					upperFirst(m.Label), ma, mb, allExtents(r.Extents))
@@ -683,6 +683,59 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 		}
 	}
 	return out
+}
+
+// notComparableWhy says why two models could be compared on no extent
+// when no difference was formed at all (not for want of test points):
+// one model's score (or both) is undefined on every extent ("coarse's
+// partial ROC ratio at E = 0.05 is undefined on every extent"), no extent
+// scores both, or on each extent that does one of them is undefined or
+// no paired difference could be formed. diffs are the differences on the
+// extents that score both.
+func (a *analysis) notComparableWhy(m MetricInfo, ma, mb string, diffs []ExtentDifference) string {
+	if len(diffs) == 0 {
+		return "no extent scores both"
+	}
+	what := strings.Replace(m.Label, ", E = ", " at E = ", 1)
+	var nowhere []string
+	for _, model := range []string{ma, mb} {
+		if !a.definedSomewhere(m, model) {
+			nowhere = append(nowhere, model+"'s")
+		}
+	}
+	switch len(nowhere) {
+	case 1:
+		return fmt.Sprintf("%s %s is undefined on every extent", nowhere[0], what)
+	case 2:
+		return fmt.Sprintf("%s %s are undefined on every extent", joinList(nowhere), what)
+	}
+	for _, d := range diffs {
+		if a.definedOn(m, ma, d.Extent) && a.definedOn(m, mb, d.Extent) {
+			return "on every extent that scores both, one of them is undefined or no paired difference could be formed"
+		}
+	}
+	return "on every extent that scores both, one of them is undefined"
+}
+
+// definedOn tells whether model's score of metric m is defined on extent.
+func (a *analysis) definedOn(m MetricInfo, model, extent string) bool {
+	sc := a.score(model, extent)
+	if sc == nil {
+		return false
+	}
+	_, ok, _, _, _, _ := metricValue(m, sc)
+	return ok
+}
+
+// definedSomewhere tells whether model's score of metric m is defined on
+// at least one extent.
+func (a *analysis) definedSomewhere(m MetricInfo, model string) bool {
+	for _, e := range a.extents {
+		if a.definedOn(m, model, e.ID) {
+			return true
+		}
+	}
+	return false
 }
 
 // notCountedText says on how many extents a model comparison was not

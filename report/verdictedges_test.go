@@ -268,7 +268,10 @@ func TestNoExtentScoredReferenceWords(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>For each metric and model, the score on every extent minus the score on base, on the test points"}, bad)
+	// With nothing scored the note says there is nothing to compare
+	// rather than explain differences from base (TestAnalysisNotesNothingToCompare).
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>No extent could be scored, so there is nothing to compare: no score has a difference from another extent.</p>"},
+		append(bad, "minus the score on"))
 }
 
 // TestModelScoredNowhereVerdictWords: a model scored on no extent (a

@@ -150,6 +150,17 @@
 #     "good is above it beyond noise on 0 of the 13 extents read, within
 #     noise on 5 and below on 8"; results.json's sensitivity.headline
 #     only, every number and scores.csv unchanged);
+#   - rewritten on branch hE of 2026-12-04 (a model comparison formed on no
+#     extent says why: the demo's "good and coarse cannot be compared on
+#     any extent." now ends "coarse's partial ROC ratio at E = 0.05 is
+#     undefined on every extent" (and at E = 0.1); those two sentences of
+#     results.json only, every number and scores.csv unchanged);
+#   - rewritten again on branch hE (the model-minus-null sentence ends
+#     "... below on 8. This describes the family of extents; it is not a
+#     test." instead of "... below on 8 (a description of this family of
+#     extents)", a second bracket after "(our cut-off)" when a count is
+#     not told; those sentences of results.json only, every number and
+#     scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
