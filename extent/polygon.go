@@ -155,6 +155,11 @@ type polygonSource struct {
 	// invalid holds the numbers (1 for the first read) of the features
 	// that feature repairs.
 	invalid map[int]bool
+
+	// geoJSON is whether GDAL opened the file as GeoJSON (s.ds may be a
+	// flattened copy in memory since): brokenGeoJSON can then tell a
+	// feature without geometry from one whose geometry cannot be decoded.
+	geoJSON bool
 }
 
 func (s *polygonSource) close() {
@@ -187,6 +192,7 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 		return nil, nil, openVectorError(path, err)
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
+	s.geoJSON = ds.Driver().ShortName() == "GeoJSON"
 	warns, err := s.ready(field)
 	if err != nil {
 		s.close()
@@ -444,6 +450,14 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 			return nil, nil, err
 		}
 		byID[id] = un
+	}
+	if len(empty) > 0 && s.geoJSON {
+		if n, why := brokenGeoJSON(s.path, empty, fid-1); n > 0 {
+			for _, un := range byID {
+				un.Close()
+			}
+			return nil, nil, fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", s.path, n, why)
+		}
 	}
 	switch len(empty) {
 	case 0:
