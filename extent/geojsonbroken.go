@@ -1,6 +1,7 @@
 package extent
 
 import (
+	"bufio"
 	"encoding/json"
 	"fmt"
 	"os"
@@ -8,29 +9,27 @@ import (
 )
 
 // brokenGeoJSON looks, in our own reading of the GeoJSON file at path,
-// at the features GDAL handed over without a geometry (empty, numbered
-// 1 for the first as the warnings number them; read is how many features
-// GDAL read): GDAL says the same nothing for a "geometry" that is null
-// and for one it cannot decode (a type "Polygn", coordinates "abc"), and
-// the second was skipped as if it were the first. It returns the first
-// such feature whose geometry is present but broken, with what is wrong;
-// 0 when there is none, when the file is not a feature collection or a
-// feature, or when its features do not line up with GDAL's (then the
-// numbering could name the wrong one).
+// for a feature whose "geometry" GDAL cannot decode whole (read is how
+// many features GDAL read). GDAL says nothing of one: a geometry it
+// cannot decode at all (a type "Polygn", coordinates "abc") comes as
+// none, as a null one does, and was skipped with the warning for a
+// feature without geometry; a part of one it cannot decode (a
+// MultiPolygon's second polygon "abc", a hole that is not a ring) is left
+// out, and the rest read as if it were the whole. It returns the first
+// such feature, numbered 1 for the first as the warnings number them,
+// with what is wrong; 0 when there is none, when the file is not a
+// feature collection or a feature, or when its features do not line up
+// with GDAL's (then the numbering could name the wrong one).
 //
 // The file is read as a stream, one feature at a time, so that a large
 // file is never held whole in memory.
-func brokenGeoJSON(path string, empty []int, read int) (fid int, problem string) {
-	want := make(map[int]bool, len(empty))
-	for _, n := range empty {
-		want[n] = true
-	}
+func brokenGeoJSON(path string, read int) (fid int, problem string) {
 	f, err := os.Open(path)
 	if err != nil {
 		return 0, ""
 	}
 	defer f.Close()
-	dec := json.NewDecoder(f)
+	dec := json.NewDecoder(bufio.NewReaderSize(f, 1<<20))
 	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
 		return 0, ""
 	}
@@ -55,7 +54,7 @@ func brokenGeoJSON(path string, empty []int, read int) (fid int, problem string)
 					return 0, ""
 				}
 				n++
-				if want[n] && fid == 0 {
+				if fid == 0 {
 					if p := geometryProblem(feat.Geometry); p != "" {
 						fid, problem = n, p
 					}
@@ -77,7 +76,7 @@ func brokenGeoJSON(path string, empty []int, read int) (fid int, problem string)
 			}
 		}
 	}
-	if n == 0 && hasSingle && read == 1 && want[1] {
+	if n == 0 && hasSingle && read == 1 {
 		if p := geometryProblem(single); p != "" {
 			return 1, p
 		}
@@ -148,41 +147,61 @@ func geometryProblem(raw json.RawMessage) string {
 	if c == "" || c == "null" {
 		return fmt.Sprintf("its %s has no \"coordinates\"", typ)
 	}
-	var v interface{}
-	if err := json.Unmarshal(g.Coordinates, &v); err != nil {
-		return "its \"coordinates\" cannot be read (" + err.Error() + ")"
-	}
-	if !nestsNumbers(v, depth) {
+	if rest, ok := nestsNumbers(g.Coordinates, depth); !ok || len(skipSpace(rest)) != 0 {
 		return fmt.Sprintf("its %s's \"coordinates\" are not numbers nested as %s", typ, geoJSONShape[strings.ToLower(typ)])
 	}
 	return ""
 }
 
-// nestsNumbers reports whether v is depth arrays deep around positions:
-// at depth 1 an array of two or more numbers; above it arrays (empty
-// ones allowed) of what depth-1 holds.
-func nestsNumbers(v interface{}, depth int) bool {
-	a, ok := v.([]interface{})
-	if !ok {
-		return false
+// nestsNumbers reports whether b (valid JSON, as the decoder checked it)
+// starts with depth arrays nested around positions: at depth 1 an array
+// of two or more numbers; above it arrays (empty ones allowed) of what
+// depth-1 holds. It returns what follows that value. The bytes are
+// scanned, not decoded: a large polygon's coordinates make no values.
+func nestsNumbers(b []byte, depth int) (rest []byte, ok bool) {
+	b = skipSpace(b)
+	if len(b) == 0 || b[0] != '[' {
+		return nil, false
 	}
-	if depth == 1 {
-		if len(a) < 2 {
-			return false
-		}
-		for _, x := range a {
-			if _, ok := x.(float64); !ok {
-				return false
+	b = skipSpace(b[1:])
+	count := 0
+	for len(b) > 0 && b[0] != ']' {
+		if count > 0 {
+			if b[0] != ',' {
+				return nil, false
 			}
+			b = skipSpace(b[1:])
 		}
-		return true
-	}
-	for _, x := range a {
-		if !nestsNumbers(x, depth-1) {
-			return false
+		if depth == 1 {
+			if len(b) == 0 || !(b[0] == '-' || (b[0] >= '0' && b[0] <= '9')) {
+				return nil, false
+			}
+			i := 1
+			for i < len(b) && strings.IndexByte("0123456789.eE+-", b[i]) >= 0 {
+				i++
+			}
+			b = skipSpace(b[i:])
+		} else {
+			var ok bool
+			if b, ok = nestsNumbers(b, depth-1); !ok {
+				return nil, false
+			}
+			b = skipSpace(b)
 		}
+		count++
 	}
-	return true
+	if len(b) == 0 || (depth == 1 && count < 2) {
+		return nil, false
+	}
+	return b[1:], true
+}
+
+// skipSpace drops the JSON white space at the start of b.
+func skipSpace(b []byte) []byte {
+	for len(b) > 0 && (b[0] == ' ' || b[0] == '\t' || b[0] == '\n' || b[0] == '\r') {
+		b = b[1:]
+	}
+	return b
 }
 
 // jsonKind names the kind of JSON value s starts with.

@@ -12,6 +12,8 @@ import (
 // is refused naming the file, the feature and what is wrong; a null or
 // absent geometry, or an empty one, is still skipped with the warning.
 // Before, every one of these was "feature 2 has no geometry; skipped".
+// So is one GDAL reads without a part it cannot decode (before, read
+// without that part, silently).
 func TestBrokenGeoJSONGeometryRefused(t *testing.T) {
 	Register()
 	good := `{"type":"Polygon","coordinates":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]]}`
@@ -30,6 +32,10 @@ func TestBrokenGeoJSONGeometryRefused(t *testing.T) {
 		{"no type", `{"coordinates":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]]}`, `its geometry has no "type"`},
 		{"geometry a string", `"abc"`, `its "geometry" is a string, not an object`},
 		{"bad member of a collection", `{"type":"GeometryCollection","geometries":[{"type":"Polygn","coordinates":[]}]}`, `member 1 of its GeometryCollection: geometry type "Polygn"`},
+		// GDAL reads these leaving the broken part out, without a word.
+		{"a MultiPolygon's second polygon a string", `{"type":"MultiPolygon","coordinates":[[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]],"abc"]}`, `feature 2 has a geometry of which a part cannot be decoded (GDAL reads it without that part): its MultiPolygon's "coordinates" are not numbers nested as an array of polygons`},
+		{"a hole a string", `{"type":"Polygon","coordinates":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]],"abc"]}`, `feature 2 has a geometry of which a part cannot be decoded (GDAL reads it without that part): its Polygon's "coordinates" are not numbers nested as an array of rings, each an array of [longitude, latitude] pairs; correct that part`},
+		{"a collection's second member of an unknown type", `{"type":"GeometryCollection","geometries":[` + good + `,{"type":"Polygn","coordinates":[]}]}`, `member 2 of its GeometryCollection: geometry type "Polygn"`},
 		{"null", `null`, ""},
 		{"absent", ``, ""},
 		{"empty polygon", `{"type":"Polygon","coordinates":[]}`, ""},
@@ -73,6 +79,45 @@ func TestBrokenGeoJSONGeometryRefused(t *testing.T) {
 	}
 }
 
+// TestValidGeoJSONNotRefused: the check refuses no valid file.
+func TestValidGeoJSONNotRefused(t *testing.T) {
+	Register()
+	// Valid forms the check must pass: spaces and line breaks inside the
+	// coordinates, a hole, a third coordinate, a lower-case type (GDAL
+	// reads it), a bbox member, an exponent, a collection.
+	body := `{"type":"FeatureCollection","features":[
+  {"type":"Feature","properties":{"u":"a"},"bbox":[-140,-40,-139,-39],"geometry":{"type":"Polygon","coordinates":[
+    [ [-140, -40] , [-139.0, -40, 12.5], [-139, -39], [-140, -40] ],
+    [[-139.8,-39.8],[-139.2,-39.8],[-139.2,-39.2],[-139.8,-39.8]]
+  ]}},
+  {"type":"Feature","properties":{"u":"b"},"geometry":{"type":"multipolygon","coordinates":[[[[-1.4e2,-41],[-139,-41],[-139,-40.5],[-1.4e2,-41]]]]}},
+  {"type":"Feature","properties":{"u":"c"},"geometry":{"type":"GeometryCollection","geometries":[{"type":"Polygon","coordinates":[[[-138,-40],[-137,-40],[-137,-39],[-138,-40]]]}]}}
+]}`
+	p := filepath.Join(t.TempDir(), "valid.geojson")
+	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if n, why := brokenGeoJSON(p, 3); n != 0 {
+		t.Fatalf("brokenGeoJSON = %d, %q on a valid file", n, why)
+	}
+	src, _, err := openPolygons(p, "u")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer src.close()
+	var warns []string
+	byID, order, err := src.unionByID(&warns)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, g := range byID {
+		g.Close()
+	}
+	if len(order) != 3 || len(warns) != 0 {
+		t.Fatalf("ids %q, warnings %q; want 3 ids and no warning", order, warns)
+	}
+}
+
 // TestBrokenGeoJSONSingleFeature: a file that is one Feature (not a
 // collection) with a broken geometry is refused as feature 1.
 func TestBrokenGeoJSONSingleFeature(t *testing.T) {
@@ -81,11 +126,11 @@ func TestBrokenGeoJSONSingleFeature(t *testing.T) {
 	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if n, why := brokenGeoJSON(p, []int{1}, 1); n != 1 || !strings.Contains(why, `"Polygn"`) {
+	if n, why := brokenGeoJSON(p, 1); n != 1 || !strings.Contains(why, `"Polygn"`) {
 		t.Fatalf("brokenGeoJSON = %d, %q; want feature 1 with the unknown type", n, why)
 	}
 	// Features that do not line up with GDAL's count: no guess.
-	if n, _ := brokenGeoJSON(p, []int{1}, 2); n != 0 {
+	if n, _ := brokenGeoJSON(p, 2); n != 0 {
 		t.Fatalf("brokenGeoJSON with a count that differs = %d, want 0", n)
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -451,12 +452,12 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		}
 		byID[id] = un
 	}
-	if len(empty) > 0 && s.geoJSON {
-		if n, why := brokenGeoJSON(s.path, empty, fid-1); n > 0 {
+	if s.geoJSON {
+		if err := s.brokenGeometry(fid-1, empty); err != nil {
 			for _, un := range byID {
 				un.Close()
 			}
-			return nil, nil, fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", s.path, n, why)
+			return nil, nil, err
 		}
 	}
 	switch len(empty) {
@@ -476,6 +477,24 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil
+}
+
+// brokenGeometry refuses a GeoJSON feature whose geometry GDAL could not
+// decode whole (see brokenGeoJSON; read features were read, those in
+// empty without a geometry): one it handed over as none, or one it read
+// without a part.
+func (s *polygonSource) brokenGeometry(read int, empty []int) error {
+	n, why := brokenGeoJSON(s.path, read)
+	if n == 0 {
+		return nil
+	}
+	what := "a geometry that cannot be decoded"
+	todo := "correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped"
+	if !slices.Contains(empty, n) {
+		what = "a geometry of which a part cannot be decoded (GDAL reads it without that part)"
+		todo = "correct that part (in a text editor or a GIS), or remove it from the coordinates"
+	}
+	return fmt.Errorf("extent: %s feature %d has %s: %s; %s", s.path, n, what, why, todo)
 }
 
 // allRead refuses a layer of which fewer features were read than it
