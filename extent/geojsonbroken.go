@@ -19,7 +19,9 @@ import (
 // such feature, numbered 1 for the first as the warnings number them,
 // with what is wrong; 0 when there is none, when the file is not a
 // feature collection or a feature, or when its features do not line up
-// with GDAL's (then the numbering could name the wrong one).
+// with GDAL's (then the numbering could name the wrong one). A read
+// below 0 (GDAL could not open the file: some broken geometries make it
+// refuse the whole file) skips that last check.
 //
 // The file is read as a stream, one feature at a time, so that a large
 // file is never held whole in memory.
@@ -76,13 +78,13 @@ func brokenGeoJSON(path string, read int) (fid int, problem string) {
 			}
 		}
 	}
-	if n == 0 && hasSingle && read == 1 {
+	if n == 0 && hasSingle && (read == 1 || read < 0) {
 		if p := geometryProblem(single); p != "" {
 			return 1, p
 		}
 		return 0, ""
 	}
-	if n != read {
+	if read >= 0 && n != read {
 		return 0, ""
 	}
 	return fid, problem

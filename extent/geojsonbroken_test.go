@@ -24,11 +24,12 @@ func TestBrokenGeoJSONGeometryRefused(t *testing.T) {
 		{"unknown type", `{"type":"Polygn","coordinates":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]]}`, `feature 2 has a geometry that cannot be decoded: its geometry type "Polygn" is not a GeoJSON type`},
 		{"coordinates a string", `{"type":"Polygon","coordinates":"abc"}`, `feature 2 has a geometry that cannot be decoded: its Polygon's "coordinates" are not numbers nested as an array of rings`},
 		{"coordinates not rings", `{"type":"Polygon","coordinates":[1,2,3]}`, `its Polygon's "coordinates" are not numbers nested`},
-		// GDAL warns of these two as it opens the file, which is refused
-		// then, naming GDAL's cause.
-		{"coordinates strings", `{"type":"Polygon","coordinates":[[["a","b"],[1,2],[3,4],["a","b"]]]}`, `is not a vector file GDAL can read (Invalid 'x' coordinate`},
+		// GDAL refuses the whole file for these two as it opens it
+		// (before, "is not a vector file GDAL can read (Invalid 'x'
+		// coordinate...)", naming no feature).
+		{"coordinates strings", `{"type":"Polygon","coordinates":[[["a","b"],[1,2],[3,4],["a","b"]]]}`, `feature 2 has a geometry that cannot be decoded: its Polygon's "coordinates" are not numbers nested`},
 		{"a point of one number", `{"type":"Polygon","coordinates":[[[-140],[-139,-40],[-139,-39],[-140]]]}`, `are not numbers nested`},
-		{"no coordinates", `{"type":"Polygon"}`, `is not a vector file GDAL can read (Invalid Polygon object. Missing 'coordinates' member`},
+		{"no coordinates", `{"type":"Polygon"}`, `feature 2 has a geometry that cannot be decoded: its Polygon has no "coordinates"`},
 		{"no type", `{"coordinates":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]]}`, `its geometry has no "type"`},
 		{"geometry a string", `"abc"`, `its "geometry" is a string, not an object`},
 		{"bad member of a collection", `{"type":"GeometryCollection","geometries":[{"type":"Polygn","coordinates":[]}]}`, `member 1 of its GeometryCollection: geometry type "Polygn"`},

@@ -226,6 +226,12 @@ func openVectorError(path string, err error) error {
 		r.Close()
 		return fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
 	}
+	if n, why := brokenGeoJSON(path, -1); n > 0 {
+		// GDAL refuses a GeoJSON file for some broken geometries
+		// (coordinates that are text, a Polygon without "coordinates")
+		// naming neither the feature nor the file's line.
+		return fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", path, n, why)
+	}
 	cause := gdalmsg.Cause(err.Error())
 	if abs, aerr := filepath.Abs(path); aerr == nil && len(abs) > MaxSQLitePath && strings.Contains(cause, "unable to open database file") {
 		// The file may be fine: SQLite, which GDAL reads a GeoPackage
