@@ -31,7 +31,11 @@ func brokenGeoJSON(path string, read int) (fid int, problem string) {
 		return 0, ""
 	}
 	defer f.Close()
-	dec := json.NewDecoder(bufio.NewReaderSize(f, 1<<20))
+	r := bufio.NewReaderSize(f, 1<<20)
+	if bom, err := r.Peek(3); err == nil && string(bom) == "\xef\xbb\xbf" {
+		r.Discard(3) // a UTF-8 byte order mark, as Windows editors write it: GDAL reads past it
+	}
+	dec := json.NewDecoder(r)
 	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
 		return 0, ""
 	}

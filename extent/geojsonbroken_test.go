@@ -130,6 +130,13 @@ func TestBrokenGeoJSONSingleFeature(t *testing.T) {
 	if n, why := brokenGeoJSON(p, 1); n != 1 || !strings.Contains(why, `"Polygn"`) {
 		t.Fatalf("brokenGeoJSON = %d, %q; want feature 1 with the unknown type", n, why)
 	}
+	// The same after a UTF-8 byte order mark.
+	if err := os.WriteFile(p, []byte("\xef\xbb\xbf"+body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if n, _ := brokenGeoJSON(p, 1); n != 1 {
+		t.Fatalf("brokenGeoJSON after a byte order mark = %d, want 1", n)
+	}
 	// Features that do not line up with GDAL's count: no guess.
 	if n, _ := brokenGeoJSON(p, 2); n != 0 {
 		t.Fatalf("brokenGeoJSON with a count that differs = %d, want 0", n)
