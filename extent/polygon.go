@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -155,6 +156,11 @@ type polygonSource struct {
 	// invalid holds the numbers (1 for the first read) of the features
 	// that feature repairs.
 	invalid map[int]bool
+
+	// geoJSON is whether GDAL opened the file as GeoJSON (s.ds may be a
+	// flattened copy in memory since): brokenGeoJSON can then tell a
+	// feature without geometry from one whose geometry cannot be decoded.
+	geoJSON bool
 }
 
 func (s *polygonSource) close() {
@@ -187,6 +193,7 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 		return nil, nil, openVectorError(path, err)
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
+	s.geoJSON = ds.Driver().ShortName() == "GeoJSON"
 	warns, err := s.ready(field)
 	if err != nil {
 		s.close()
@@ -218,6 +225,12 @@ func openVectorError(path string, err error) error {
 	} else if r, rerr := OpenRaster(path); rerr == nil {
 		r.Close()
 		return fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
+	}
+	if n, why := brokenGeoJSON(path, -1); n > 0 {
+		// GDAL refuses a GeoJSON file for some broken geometries
+		// (coordinates that are text, a Polygon without "coordinates")
+		// naming neither the feature nor the file's line.
+		return fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", path, n, why)
 	}
 	cause := gdalmsg.Cause(err.Error())
 	if abs, aerr := filepath.Abs(path); aerr == nil && len(abs) > MaxSQLitePath && strings.Contains(cause, "unable to open database file") {
@@ -445,6 +458,14 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		}
 		byID[id] = un
 	}
+	if s.geoJSON {
+		if err := s.brokenGeometry(fid-1, empty); err != nil {
+			for _, un := range byID {
+				un.Close()
+			}
+			return nil, nil, err
+		}
+	}
 	switch len(empty) {
 	case 0:
 	case 1:
@@ -462,6 +483,24 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil
+}
+
+// brokenGeometry refuses a GeoJSON feature whose geometry GDAL could not
+// decode whole (see brokenGeoJSON; read features were read, those in
+// empty without a geometry): one it handed over as none, or one it read
+// without a part.
+func (s *polygonSource) brokenGeometry(read int, empty []int) error {
+	n, why := brokenGeoJSON(s.path, read)
+	if n == 0 {
+		return nil
+	}
+	what := "a geometry that cannot be decoded"
+	todo := "correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped"
+	if !slices.Contains(empty, n) {
+		what = "a geometry of which a part cannot be decoded (GDAL reads it without that part)"
+		todo = "correct that part (in a text editor or a GIS), or remove it from the coordinates"
+	}
+	return fmt.Errorf("extent: %s feature %d has %s: %s; %s", s.path, n, what, why, todo)
 }
 
 // allRead refuses a layer of which fewer features were read than it

@@ -30,7 +30,9 @@ import (
 //   - a second model without data on some cells of the extents (where the
 //     first model has data): it is scored there against a smaller
 //     background, so its scores and its differences from the first model
-//     compare unlike backgrounds.
+//     compare unlike backgrounds;
+//   - a Byte model with a colour table (a classified map): scored on its
+//     palette indexes, right only if they are the suitability scale.
 //
 // The plain study warns about none of these.
 func TestSuspectInputsWarned(t *testing.T) {
@@ -94,7 +96,7 @@ func TestSuspectInputsWarned(t *testing.T) {
 			}
 		}
 	}
-	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84", "has no data on cells where the first model", "which its Byte band (whole numbers from 0 to 255) cannot hold"}
+	suspect := []string{"declares no nodata value", "holds the same bytes", "no scored test point lies in the base region", "on another datum than WGS84", "has no data on cells where the first model", "which its Byte band (whole numbers from 0 to 255) cannot hold", "has a colour table"}
 
 	t.Run("plain study", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--model", "sq="+s.model2, "--occurrences", s.occ)
@@ -215,6 +217,43 @@ func TestSuspectInputsWarned(t *testing.T) {
 		}
 		se, ws := run(t, "--model", "m="+p, "--occurrences", s.occ)
 		says(t, se, ws, suspect[5], "model m", "byte9999.tif", "nodata value -9999", "no cell is no data", "gdal_translate -a_nodata 0 "+p)
+	})
+	t.Run("a Byte model with a colour table", func(t *testing.T) {
+		// A paletted GeoTIFF (as a classified map is saved): scored on
+		// its palette indexes, which the user is told, with what to do.
+		p := filepath.Join(s.dir, "paletted.tif")
+		ds, err := godal.Create(godal.GTiff, p, 1, godal.Byte, s.w, s.h)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.SetGeoTransform(s.gt)
+		ds.SetProjection(wgs84WKT)
+		b := ds.Bands()[0]
+		if err := b.SetNoData(255); err != nil {
+			t.Fatal(err)
+		}
+		buf := make([]uint8, len(s.vals))
+		for i, v := range s.vals {
+			buf[i] = 255
+			if !math.IsNaN(v) {
+				buf[i] = uint8(math.Round(200 * v))
+			}
+		}
+		if err := b.Write(0, 0, buf, s.w, s.h); err != nil {
+			t.Fatal(err)
+		}
+		entries := make([][4]int16, 256)
+		for i := range entries {
+			entries[i] = [4]int16{int16(255 - i), int16(i), 0, 255}
+		}
+		if err := b.SetColorTable(godal.ColorTable{PaletteInterp: godal.RGBPalette, Entries: entries}); err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		se, ws := run(t, "--model", "m="+p, "--occurrences", s.occ)
+		says(t, se, ws, suspect[6], "model m", "paletted.tif", "256 colours", "palette indexes", "gdal_translate -expand gray "+p)
 	})
 	t.Run("no test point in the base region", func(t *testing.T) {
 		se, ws := run(t, "--model", "m="+s.model, "--occurrences", outsideOcc)

@@ -667,6 +667,12 @@ func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
 			if k.Kind != yaml.ScalarNode || p.Kind != yaml.ScalarNode {
 				return nil, &lineErr{k.Line, badValue("each entry must be NAME: PATH; %s", example)}
 			}
+			// The key is the name alone: joined with its path as
+			// NAME=PATH, a key holding '=' ("good=x") was split there,
+			// into the name good and a path x=... that did not exist.
+			if why := nameMisfit(strings.TrimSpace(k.Value)); why != "" {
+				return nil, &lineErr{k.Line, badValue("the key %s is not a name: it %s; in the form NAME: PATH the key is the name alone, 1 to 40 letters, digits, '_', '-' or '.' (for example \"gbm: models/gbm.tif\" under \"%s:\")", shown(k.Value), why, key)}
+			}
 			s, err := one(k, k.Value+"="+p.Value)
 			if err != nil {
 				return nil, err
@@ -701,24 +707,32 @@ func ParseNamedPath(s string) (name, path string, err error) {
 	if name == "" {
 		return "", "", fmt.Errorf("%w: %s has no NAME before '='; %s", ErrNamedPath, shown(s), advice)
 	}
-	if !nameRE.MatchString(name) {
+	if why := nameMisfit(name); why != "" {
 		// The value itself is not repeated: every caller names it (a
 		// long one was quoted twice, whole and cut).
-		why := "holds a character other than letters, digits, '_', '-' or '.'"
-		if r, ok := firstNameMisfit(name); ok {
-			// Name it: "other than letters" read as wrong for an
-			// accented letter (gööd), and a space was invisible.
-			why = fmt.Sprintf("holds %q, which is none of the ASCII letters A-Z and a-z (no accents), digits, '_', '-' or '.'", r)
-		}
-		if n := utf8.RuneCountInString(name); n > 40 {
-			why = fmt.Sprintf("is %d characters long", n)
-		}
 		return "", "", fmt.Errorf("%w: the name %s %s; %s", ErrNamedPath, shown(name), why, advice)
 	}
 	if path == "" {
 		return "", "", fmt.Errorf("%w: %q has no PATH after '='; %s", ErrNamedPath, s, advice)
 	}
 	return name, path, nil
+}
+
+// nameMisfit says why name is not a NAME of NAME=PATH (1 to 40 ASCII
+// letters, digits, '_', '-' or '.'), or "" when it is one.
+func nameMisfit(name string) string {
+	if nameRE.MatchString(name) {
+		return ""
+	}
+	if n := utf8.RuneCountInString(name); n > 40 {
+		return fmt.Sprintf("is %d characters long", n)
+	}
+	if r, ok := firstNameMisfit(name); ok {
+		// Name it: "other than letters" read as wrong for an accented
+		// letter (gööd), and a space was invisible.
+		return fmt.Sprintf("holds %q, which is none of the ASCII letters A-Z and a-z (no accents), digits, '_', '-' or '.'", r)
+	}
+	return "is empty"
 }
 
 // firstNameMisfit returns the first character of name that a NAME may

@@ -184,6 +184,14 @@ func TestParseStudyErrors(t *testing.T) {
 		{"model bad name", "model:\n  - ok=a.tif\n  - \"my model=b.tif\"\n", ErrNamedPath, 3, "model", []string{`name "my model"`}},
 		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
 		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
+		// A mapping's key is the name alone: "good=x" was split at its
+		// '=' into the name good and the path x=a.tif, which "did not
+		// exist".
+		{"model mapping key holds =", "model: {\"good=x\": a.tif}\n", ErrBadValue, 1, "model", []string{`the key "good=x" is not a name: it holds '='`, "the key is the name alone", `"gbm: models/gbm.tif" under "model:"`}},
+		{"null mapping key holds =", "null:\n  a=b: c.tif\n", ErrBadValue, 2, "null", []string{`the key "a=b" is not a name: it holds '='`}},
+		{"extra mapping key with a space", "extra:\n  my mask: m.gpkg\n", ErrBadValue, 2, "extra", []string{`the key "my mask" is not a name: it holds ' '`}},
+		{"extra mapping key empty", "extra:\n  \"\": m.gpkg\n", ErrBadValue, 2, "extra", []string{`the key "" is not a name: it is empty`}},
+		{"model mapping key too long", "model:\n  " + strings.Repeat("a", 41) + ": m.tif\n", ErrBadValue, 2, "model", []string{"is 41 characters long"}},
 		{"syntax error tab", "iterations: 10\n\tseed: 3\n", ErrStudySyntax, 0, "", []string{"near line 2", "spaces (not tabs)"}},
 		{"syntax error on line 1", "a: b: c\n", ErrStudySyntax, 0, "", []string{"near line 1:", "a second ': ' on one line", "key: value"}},
 		{"syntax error unclosed", "e: [1, 2\n", ErrStudySyntax, 0, "", []string{"key: value"}},

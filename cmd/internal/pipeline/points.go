@@ -147,7 +147,7 @@ func (s *Study) openGrid() error {
 			}
 			return fault.BadInput(fmt.Errorf("%s: %w", m.who(), err))
 		}
-		msg, band, nBands := maskProblem(m.Path)
+		msg, band, nBands, colours := maskProblem(m.Path)
 		if band != "" {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("%s: %s %s", m.who(), m.Path, band))
@@ -156,6 +156,9 @@ func (s *Study) openGrid() error {
 			g.Close()
 			return fault.BadInput(fmt.Errorf("%s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
 				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.who(), m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
+		}
+		if colours > 0 {
+			s.warn(colourTableWarning(m.who(), m.Path, colours))
 		}
 		if nBands > 1 {
 			stem := strings.TrimSuffix(m.Path, filepath.Ext(m.Path))
@@ -256,17 +259,31 @@ func shellArg(path string) string {
 // first band (complex values, a scale of 0, ...) and the raster's number
 // of bands (0 when it cannot be opened: OpenGrid has read it, and a later
 // read reports its own error).
-func maskProblem(path string) (mask, band string, nBands int) {
+func maskProblem(path string) (mask, band string, nBands, colours int) {
 	ds, err := extent.OpenRaster(path)
 	if err != nil {
-		return "", "", 0
+		return "", "", 0, 0
 	}
 	defer ds.Close()
 	bands := ds.Bands()
 	if len(bands) > 0 {
 		band = pass.BandProblem(bands[0])
+		colours = len(bands[0].ColorTable().Entries)
 	}
-	return maskOf(bands), band, len(bands)
+	return maskOf(bands), band, len(bands), colours
+}
+
+// colourTableWarning says that the model or null who (its raster at path,
+// whose first band has a colour table of colours entries: a classified
+// map, or an image saved for display) is scored on its raw cell values,
+// the palette's indexes, as every raster is: right when the indexes are
+// the suitability scale, wrong when the colours stand for other values
+// (the classes of a legend in another order, a colour ramp drawn over a
+// scale the indexes do not keep).
+func colourTableWarning(who, path string, colours int) string {
+	stem := strings.TrimSuffix(path, filepath.Ext(path))
+	return fmt.Sprintf("%s: %s has a colour table (%d colours, as a classified map or an image saved for display has); it is scored on its raw cell values, the palette indexes, which is right only if those indexes are the suitability scale (higher meaning more suitable); if not, give a copy holding the real values: the palette's grey shades as values (gdal_translate -expand gray %s %s), or each index turned into its value with a calculation (e.g. gdal_calc.py -A %s --outfile=%s --calc=\"A/200.0\" for indexes 0 to 200 standing for 0 to 1)",
+		who, path, colours, shellArg(path), shellArg(stem+"_gray.tif"), shellArg(path), shellArg(stem+"_values.tif"))
 }
 
 // maskOf is maskProblem's reading of a raster's bands.
