@@ -611,3 +611,34 @@ func TestNotComparableSaysWhy(t *testing.T) {
 		})
 	}
 }
+
+// TestWithinBracket: a verdict line's note goes inside the label's own
+// bracket when the label ends with one ("AUC (cells unweighted; tolerance
+// ...)"), never as a bracket after a bracket; and no verdict sentence of
+// the analysed sample holds ") (" (it read "AUC (cells unweighted)
+// (tolerance ±0.02, ...)").
+func TestWithinBracket(t *testing.T) {
+	for _, c := range []struct{ label, note, want string }{
+		{"AUC", "tolerance ±0.02", "AUC (tolerance ±0.02)"},
+		{"AUC (cells unweighted)", "tolerance ±0.02", "AUC (cells unweighted; tolerance ±0.02)"},
+		{"Partial ROC ratio, E = 0.05", "tolerance ±0.05", "Partial ROC ratio, E = 0.05 (tolerance ±0.05)"},
+		{"odd)", "n", "odd) (n)"}, // no opening bracket: not the label's own
+	} {
+		if got := withinBracket(c.label, c.note); got != c.want {
+			t.Errorf("withinBracket(%q, %q) = %q, want %q", c.label, c.note, got, c.want)
+		}
+	}
+	r := analyzedSample(t)
+	n := 0
+	for _, v := range r.Sensitivity.Verdicts {
+		if strings.Contains(v.Sentence, ") (") {
+			t.Errorf("verdict sentence with a bracket after a bracket: %s", v.Sentence)
+		}
+		if strings.Contains(v.Sentence, "(cells unweighted; tolerance") {
+			n++
+		}
+	}
+	if n == 0 {
+		t.Error("the sample has no verdict on the AUC with cells unweighted: the check above saw none")
+	}
+}

@@ -146,6 +146,17 @@ func (a *analysis) scoredSomewhere(model string) bool {
 	return false
 }
 
+// withinBracket returns label followed by note in brackets, "AUC
+// (tolerance ...)", or, when label itself ends with a bracket, note added
+// inside it, "AUC (cells unweighted; tolerance ...)", rather than a
+// bracket after a bracket.
+func withinBracket(label, note string) string {
+	if l, ok := strings.CutSuffix(label, ")"); ok && strings.Contains(l, "(") {
+		return l + "; " + note + ")"
+	}
+	return label + " (" + note + ")"
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
@@ -582,7 +593,7 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 		// not be scored: name it, not "the base extent".
 		from = "the reference extent " + mvs[0].Base
 	}
-	v.Sentence = fmt.Sprintf("%s (tolerance ±%s, paired differences from %s): %s.", upperFirst(m.Label), fmtG(m.Tolerance), from, strings.Join(parts, "; "))
+	v.Sentence = fmt.Sprintf("%s: %s.", withinBracket(upperFirst(m.Label), fmt.Sprintf("tolerance ±%s, paired differences from %s", fmtG(m.Tolerance), from)), strings.Join(parts, "; "))
 	if m.Kind == MetricBoyce {
 		v.Sentence = boyceVerdictSentence(m, mvs, from)
 	}

@@ -161,6 +161,11 @@
 #     extents)", a second bracket after "(our cut-off)" when a count is
 #     not told; those sentences of results.json only, every number and
 #     scores.csv unchanged);
+#   - rewritten when the verdict line of a score whose label ends with a
+#     bracket took its note inside it: "AUC (cells unweighted; tolerance
+#     ±0.02, paired differences from the base extent): ...", not a bracket
+#     after a bracket; results.json's verdicts[].sentence only, every
+#     number and scores.csv unchanged);
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
