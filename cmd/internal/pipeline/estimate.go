@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"runtime"
 
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
@@ -38,13 +37,7 @@ func Estimate(o Options) (int64, error) {
 	if err != nil {
 		return 0, err
 	}
-	workers := o.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
-	if o.ExtentsOnly {
-		workers = 0
-	}
+	workers := o.readWorkers()
 	reads, _ := o.readBytes(workers)
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), reads, points)
 	est.Resamples = o.resampleMemo(o.maxExtents(), points)

@@ -98,6 +98,19 @@ func (o *Options) readBytes(workers int) (most int64, stripped string) {
 	return most, stripped
 }
 
+// readWorkers is the number of workers whose block reads the memory
+// estimate counts: --workers, or GOMAXPROCS when it is not set, and none
+// for `extents`, whose run scores no model.
+func (o *Options) readWorkers() int {
+	if o.ExtentsOnly {
+		return 0
+	}
+	if o.Workers > 0 {
+		return o.Workers
+	}
+	return runtime.GOMAXPROCS(0)
+}
+
 // maxExtents is an upper bound on the members the settings can make,
 // before the family is built.
 func (o *Options) maxExtents() int {
@@ -165,13 +178,7 @@ const memoryShare = 0.8
 // available memory, with the figure and what to change.
 func (s *Study) checkMemory() error {
 	o, g := s.o, s.grid
-	workers := o.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
-	if o.ExtentsOnly {
-		workers = 0
-	}
+	workers := o.readWorkers()
 	layout := len(s.points) + len(o.Thresholds)
 	reads, stripped := o.readBytes(workers)
 	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, reads, len(s.points))
@@ -206,13 +213,7 @@ func stripsAdvice(stripped string, reads int64) string {
 // the most (see checkMemory), or "": a batch adds it to a study too large
 // for its budget.
 func StripsAdvice(o Options) string {
-	workers := o.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
-	if o.ExtentsOnly {
-		workers = 0
-	}
+	workers := o.readWorkers()
 	reads, stripped := o.readBytes(workers)
 	return stripsAdvice(stripped, reads)
 }
