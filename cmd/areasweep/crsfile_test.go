@@ -15,7 +15,8 @@ import (
 // results.json records it with its SHA-256 (role occurrences-crs, after
 // the occurrences), and --out may not be that file. It was read and
 // neither recorded nor rechecked, so a batch did not see it change. An
-// authority code records no such input.
+// authority code records no such input; a file that holds no CRS is
+// refused saying what it must hold.
 func TestOccurrencesCRSFile(t *testing.T) {
 	s := newSmallStudy(t)
 	dir := t.TempDir()
@@ -65,8 +66,21 @@ func TestOccurrencesCRSFile(t *testing.T) {
 			t.Errorf("--occurrences-crs %s: roles in the order %s", c.crs, in["order"])
 		}
 	}
+	// A file that holds no CRS: refused, saying what the file must hold.
+	garbage := filepath.Join(dir, "garbage.prj")
+	if err := os.WriteFile(garbage, []byte("garbage"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "garbage-out")
+	_, se, code := runBin(t, "run", "--quiet", "--region", s.region, "--occurrences", s.occ, "--model", "m="+s.model, "--occurrences-crs", garbage, "--out", out)
+	if code != 2 || !strings.Contains(se, garbage+" is a file, read for the CRS") || !strings.Contains(se, "WKT") {
+		t.Errorf("--occurrences-crs holding no CRS: exit %d (want 2): %s", code, se)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("--occurrences-crs holding no CRS: %s was created", out)
+	}
 	// --out may not be the CRS file.
-	_, se, code := runBin(t, "run", "--quiet", "--region", s.region, "--occurrences", s.occ, "--model", "m="+s.model, "--occurrences-crs", prj, "--out", prj)
+	_, se, code = runBin(t, "run", "--quiet", "--region", s.region, "--occurrences", s.occ, "--model", "m="+s.model, "--occurrences-crs", prj, "--out", prj)
 	if b, _ := os.ReadFile(prj); code != 2 || string(b) != wkt {
 		t.Errorf("--out = the CRS file: exit %d (want 2), file now %q: %s", code, b, se)
 	}
