@@ -18,11 +18,7 @@ import (
 // text are ids like any other.
 func TestControlCharacterIDs(t *testing.T) {
 	g, _ := geoGrid(t, 0, 10, 0.1, 100, 100)
-	sr, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer sr.Close()
+	sr := wgs84SR(t)
 	square := func(x0 float64) []byte {
 		geom, err := godal.NewGeometryFromWKT(fmt.Sprintf("POLYGON((%g 1,%g 1,%g 3,%g 3,%g 1))", x0, x0+2, x0+2, x0, x0), sr)
 		if err != nil {

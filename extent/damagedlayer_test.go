@@ -22,11 +22,7 @@ import (
 // refused as having "-1 feature(s) with no value (NULL)".
 func TestDamagedGeoPackageLayer(t *testing.T) {
 	g, _ := geoGrid(t, 0, 10, 0.1, 100, 100)
-	sr, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer sr.Close()
+	sr := wgs84SR(t)
 	var feats []Feature
 	for i := 0; i < 400; i++ {
 		x, y := 0.05+float64(i%40)*0.25, 0.05+float64(i/40)*0.5

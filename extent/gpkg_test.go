@@ -25,11 +25,7 @@ import (
 func TestWriteLayerOneTransaction(t *testing.T) {
 	const n = 2000
 	Register()
-	srs, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srs.Close()
+	srs := wgs84SR(t)
 	feats := make([]Feature, n)
 	for i := range feats {
 		b, err := wkb.Marshal(orb.Point{float64(i%90) - 45, float64(i/90) - 20})
@@ -88,11 +84,7 @@ func TestWriteLayerOneTransaction(t *testing.T) {
 // umask 000 0644 beside 0666 (seen with stat after runs under each umask).
 func TestWriteLayerMode(t *testing.T) {
 	Register()
-	srs, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer srs.Close()
+	srs := wgs84SR(t)
 	b, err := wkb.Marshal(orb.Point{10, 20})
 	if err != nil {
 		t.Fatal(err)

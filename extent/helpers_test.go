@@ -82,3 +82,15 @@ func writePolygonGPKG(t *testing.T, path string, epsg int, rings ...[][2]float64
 		t.Fatal(err)
 	}
 }
+
+// wgs84SR returns EPSG:4326 as a spatial reference, closed when the test
+// ends.
+func wgs84SR(t testing.TB) *godal.SpatialRef {
+	t.Helper()
+	sr, err := godal.NewSpatialRefFromEPSG(4326)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(sr.Close)
+	return sr
+}

@@ -18,11 +18,7 @@ import (
 // outside its shell (1600).
 func TestRepairKeepsArea(t *testing.T) {
 	g, _ := geoGrid(t, 0, 10, 0.1, 100, 100)
-	sr, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer sr.Close()
+	sr := wgs84SR(t)
 	tests := []struct {
 		name, wkt string
 		want      int

@@ -43,11 +43,7 @@ func TestNonFiniteVertexRefused(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			path := filepath.Join(t.TempDir(), "region.gpkg")
-			sr, err := godal.NewSpatialRefFromEPSG(4326)
-			if err != nil {
-				t.Fatal(err)
-			}
-			defer sr.Close()
+			sr := wgs84SR(t)
 			ds, err := godal.CreateVector(godal.GeoPackage, path)
 			if err != nil {
 				t.Fatal(err)

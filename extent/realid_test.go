@@ -19,11 +19,7 @@ import (
 // 1.0000001 and 1.0000004 one unit "1.000000" (found by hV's audit).
 func TestRealUnitIDs(t *testing.T) {
 	g, _ := geoGrid(t, 0, 10, 0.1, 100, 100)
-	sr, err := godal.NewSpatialRefFromEPSG(4326)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer sr.Close()
+	sr := wgs84SR(t)
 	square := func(x0, y0 float64) []byte {
 		geom, err := godal.NewGeometryFromWKT(fmt.Sprintf("POLYGON((%g %g,%g %g,%g %g,%g %g,%g %g))",
 			x0, y0, x0+2, y0, x0+2, y0+2, x0, y0+2, x0, y0), sr)

@@ -60,13 +60,20 @@ func (o *Options) InputPaths() []string {
 // a WKT or PROJ string): such a file is an input like the others, its
 // SHA-256 recorded and rechecked.
 func (o *Options) crsFile() string {
-	if o.OccurrencesCRS == "" {
-		return ""
-	}
-	if st, err := os.Stat(o.OccurrencesCRS); err != nil || !st.Mode().IsRegular() {
+	if !namesFile(o.OccurrencesCRS) {
 		return ""
 	}
 	return o.OccurrencesCRS
+}
+
+// namesFile reports whether crs, a CRS as the user wrote it, names a
+// regular file (GDAL then reads the CRS from it).
+func namesFile(crs string) bool {
+	if crs == "" {
+		return false
+	}
+	st, err := os.Stat(crs)
+	return err == nil && st.Mode().IsRegular()
 }
 
 // IO are the streams a run writes to besides its output folder.

@@ -316,8 +316,7 @@ func maskOf(bands []godal.Band) string {
 // crsAdvice says how to write a CRS, suggesting EPSG:N for a bare number
 // and saying what a file named there must hold.
 func crsAdvice(crs string) string {
-	if st, err := os.Stat(crs); err == nil && st.Mode().IsRegular() {
-		// GDAL reads a file named there for the CRS's text.
+	if namesFile(crs) {
 		return fmt.Sprintf("%s is a file, read for the CRS, whose text GDAL does not take as one: it should hold the CRS's WKT (as the .prj beside a shapefile does) or a PROJ string; or write an authority code such as EPSG:3035", crs)
 	}
 	if _, err := strconv.ParseUint(strings.TrimSpace(crs), 10, 32); err == nil {
