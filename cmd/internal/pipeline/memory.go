@@ -105,6 +105,12 @@ func (o *Options) readWorkers() int {
 	if o.ExtentsOnly {
 		return 0
 	}
+	return o.workers()
+}
+
+// workers is the number of goroutines a run's parallel work uses:
+// --workers, or GOMAXPROCS when it is not set.
+func (o *Options) workers() int {
 	if o.Workers > 0 {
 		return o.Workers
 	}

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"hash/fnv"
 	"math"
-	"runtime"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -104,10 +103,7 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	n := len(s.fam.Members)
 	scores := make([]extentScore, n)
 	errs := make([]error, n)
-	workers := s.o.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
+	workers := s.o.workers()
 	sem := make(chan struct{}, max(1, workers))
 	var wg sync.WaitGroup
 	for k := range n {
@@ -137,10 +133,7 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 // all have returned. f must only write what belongs to its index, so that
 // nothing depends on the schedule.
 func (s *Study) parallel(n int, f func(i int)) {
-	workers := s.o.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
+	workers := s.o.workers()
 	workers = min(workers, n)
 	if workers <= 1 {
 		for i := range n {
