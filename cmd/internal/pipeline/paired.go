@@ -2,7 +2,6 @@ package pipeline
 
 import (
 	"fmt"
-	"runtime"
 	"slices"
 	"sync"
 
@@ -51,10 +50,7 @@ func (s *Study) paired() error {
 	// and keep the results in job order.
 	out := make([][]report.Paired, len(jobs))
 	errs := make([]error, len(jobs))
-	workers := s.o.Workers
-	if workers <= 0 {
-		workers = runtime.NumCPU()
-	}
+	workers := s.o.workers()
 	var wg sync.WaitGroup
 	next := make(chan int)
 	for w := 0; w < min(workers, max(1, len(jobs))); w++ {
