@@ -350,6 +350,27 @@ func writeE2EStudy(t *testing.T, st *e2eStudy, g *e2eGolden, dir string) string 
 // lies so close to the buffer's edge that the documented densification may
 // leave them out.
 func TestEndToEndGolden(t *testing.T) {
+	g := loadE2EGolden(t)
+	for i := range g.Studies {
+		st := &g.Studies[i]
+		t.Run(st.Spec.Name, func(t *testing.T) {
+			dir := t.TempDir()
+			study := writeE2EStudy(t, st, g, dir)
+			if _, se, code := runBin(t, "run", "--study", study, "--quiet"); code != 0 {
+				t.Fatalf("exit %d: %s", code, se)
+			}
+			res := loadResults(t, filepath.Join(dir, "out"))
+			names, bands := readBands(t, filepath.Join(dir, "out", "extents.tif"))
+			checkE2E(t, st, res, names, bands)
+			validGeoPackages(t, filepath.Join(dir, "out", "extents.gpkg"), filepath.Join(dir, "out", "omitted_points.gpkg"))
+		})
+	}
+}
+
+// loadE2EGolden reads testdata/endtoend/golden.json and checks it holds the
+// five studies.
+func loadE2EGolden(t *testing.T) *e2eGolden {
+	t.Helper()
 	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "endtoend", "golden.json"))
 	if err != nil {
 		t.Fatal(err)
@@ -361,20 +382,7 @@ func TestEndToEndGolden(t *testing.T) {
 	if len(g.Studies) != 5 {
 		t.Fatalf("golden.json has %d studies, want 5", len(g.Studies))
 	}
-	for i := range g.Studies {
-		st := &g.Studies[i]
-		t.Run(st.Spec.Name, func(t *testing.T) {
-			dir := t.TempDir()
-			study := writeE2EStudy(t, st, &g, dir)
-			if _, se, code := runBin(t, "run", "--study", study, "--quiet"); code != 0 {
-				t.Fatalf("exit %d: %s", code, se)
-			}
-			res := loadResults(t, filepath.Join(dir, "out"))
-			names, bands := readBands(t, filepath.Join(dir, "out", "extents.tif"))
-			checkE2E(t, st, res, names, bands)
-			validGeoPackages(t, filepath.Join(dir, "out", "extents.gpkg"), filepath.Join(dir, "out", "omitted_points.gpkg"))
-		})
-	}
+	return &g
 }
 
 func relDiff(got, want float64) float64 {

@@ -40,15 +40,25 @@ func (s *smallStudy) shardArgs(t *testing.T, out string, extra ...string) []stri
 	return s.args(out, append([]string{"--null", "holes=" + holes}, extra...)...)
 }
 
-// runShards runs shards 1..n of the small study, shard i into dir/shard-i
-// with --workers 1 for odd i and 2 for even i, and returns the folders.
+// runShards runs shards 1..n of the small study (shardArgs) into
+// dir/shard-i: see runShardsOf.
 func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) []string {
+	t.Helper()
+	return runShardsOf(t, dir, n, func(out string, more ...string) []string {
+		return s.shardArgs(t, out, append(more, extra...)...)
+	})
+}
+
+// runShardsOf runs shards 1..n of the run whose arguments args gives for an
+// output folder (and extra flags), shard i into dir/shard-i with --workers
+// 1 for odd i and 2 for even i, checks each wrote its partial file, and
+// returns the folders.
+func runShardsOf(t *testing.T, dir string, n int, args func(out string, extra ...string) []string) []string {
 	t.Helper()
 	var outs []string
 	for i := 1; i <= n; i++ {
 		out := filepath.Join(dir, fmt.Sprintf("shard-%d", i))
-		args := s.shardArgs(t, out, append([]string{"--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2 - i%2)}, extra...)...)
-		if _, se, code := runBin(t, args...); code != 0 {
+		if _, se, code := runBin(t, args(out, "--shard", fmt.Sprintf("%d/%d", i, n), "--workers", fmt.Sprint(2-i%2))...); code != 0 {
 			t.Fatalf("shard %d/%d: exit %d: %s", i, n, code, se)
 		}
 		if _, err := os.Stat(filepath.Join(out, fmt.Sprintf("shard-%d-of-%d.aspf", i, n))); err != nil {
@@ -57,6 +67,59 @@ func runShards(t *testing.T, s *smallStudy, dir string, n int, extra ...string) 
 		outs = append(outs, out)
 	}
 	return outs
+}
+
+// mergeShuffled merges the shards whose folders outs holds (shard i in
+// outs[i-1]) into merged, giving them in the order order (a permutation of
+// 0..len(outs)-1), shard 1 by its partial file and the others by folder.
+func mergeShuffled(t *testing.T, outs []string, order []int, merged string) {
+	t.Helper()
+	n := len(outs)
+	args := []string{"merge", "--quiet", "--out", merged}
+	for _, i := range order {
+		if i == 0 {
+			args = append(args, filepath.Join(outs[i], fmt.Sprintf("shard-1-of-%d.aspf", n)))
+		} else {
+			args = append(args, outs[i])
+		}
+	}
+	if _, se, code := runBin(t, args...); code != 0 {
+		t.Fatalf("N=%d: merge: exit %d: %s", n, code, se)
+	}
+}
+
+// comparedOutputs lists the outputs of the run in folder dir that a run
+// with other workers or a merge of shards must write byte for byte the
+// same: results.json, scores.csv, the report, methods, the extents and
+// their raster (the runs that call it write it), omitted points and every
+// figure.
+func comparedOutputs(t *testing.T, dir string) []string {
+	t.Helper()
+	same := []string{"results.json", "scores.csv", "report.html", "methods.md", "extents.gpkg", "extents.tif", "omitted_points.gpkg"}
+	figs, _ := filepath.Glob(filepath.Join(dir, "figures", "*"))
+	if len(figs) == 0 {
+		t.Fatalf("the run in %s wrote no figure", dir)
+	}
+	for _, f := range figs {
+		same = append(same, filepath.Join("figures", filepath.Base(f)))
+	}
+	return same
+}
+
+// sameOutputs reports each file of files that differs between folders a
+// (the single run's) and b (what names b's run in the message).
+func sameOutputs(t *testing.T, a, b string, files []string, what string) {
+	t.Helper()
+	for _, f := range files {
+		x, err1 := os.ReadFile(filepath.Join(a, f))
+		y, err2 := os.ReadFile(filepath.Join(b, f))
+		if err1 != nil || err2 != nil {
+			t.Fatalf("%s: %s: %v %v", what, f, err1, err2)
+		}
+		if !bytes.Equal(x, y) {
+			t.Errorf("%s: %s differs from the single run's", what, f)
+		}
+	}
 }
 
 // TestShardsMergeToSingleRun: the small study split into N = 1, 2, 3 and 7
@@ -70,40 +133,18 @@ func TestShardsMergeToSingleRun(t *testing.T) {
 	if _, se, code := runBin(t, s.shardArgs(t, single)...); code != 0 {
 		t.Fatalf("single run: exit %d: %s", code, se)
 	}
-	same := []string{"results.json", "scores.csv", "report.html", "methods.md", "extents.gpkg", "extents.tif", "omitted_points.gpkg"}
-	figs, _ := filepath.Glob(filepath.Join(single, "figures", "*"))
-	if len(figs) == 0 {
-		t.Fatal("the single run wrote no figure")
-	}
-	for _, f := range figs {
-		same = append(same, filepath.Join("figures", filepath.Base(f)))
-	}
+	same := comparedOutputs(t, single)
 	for _, n := range []int{1, 2, 3, 7} {
 		dir := filepath.Join(s.dir, fmt.Sprintf("n%d", n))
 		outs := runShards(t, s, dir, n)
 		merged := filepath.Join(dir, "merged")
 		// Folders and a file, in a shuffled order.
-		args := []string{"merge", "--quiet", "--out", merged}
-		for i := len(outs) - 1; i >= 0; i-- {
-			if i == 0 {
-				args = append(args, filepath.Join(outs[i], fmt.Sprintf("shard-1-of-%d.aspf", n)))
-			} else {
-				args = append(args, outs[i])
-			}
+		var order []int
+		for i := n - 1; i >= 0; i-- {
+			order = append(order, i)
 		}
-		if _, se, code := runBin(t, args...); code != 0 {
-			t.Fatalf("N=%d: merge: exit %d: %s", n, code, se)
-		}
-		for _, f := range same {
-			a, err1 := os.ReadFile(filepath.Join(single, f))
-			b, err2 := os.ReadFile(filepath.Join(merged, f))
-			if err1 != nil || err2 != nil {
-				t.Fatalf("N=%d: %s: %v %v", n, f, err1, err2)
-			}
-			if !bytes.Equal(a, b) {
-				t.Errorf("N=%d: %s of the merge differs from the single run's", n, f)
-			}
-		}
+		mergeShuffled(t, outs, order, merged)
+		sameOutputs(t, single, merged, same, fmt.Sprintf("N=%d: the merge", n))
 	}
 }
 
