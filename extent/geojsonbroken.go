@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 	"strings"
 )
 
@@ -85,16 +86,11 @@ func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem st
 	case esriJSONDialect:
 		check = esriGeometryProblem
 	}
-	f, err := os.Open(path)
+	dec, closeFile, err := jsonStream(path)
 	if err != nil {
 		return 0, ""
 	}
-	defer f.Close()
-	r := bufio.NewReaderSize(f, 1<<20)
-	if bom, err := r.Peek(3); err == nil && string(bom) == "\xef\xbb\xbf" {
-		r.Discard(3) // a UTF-8 byte order mark, as Windows editors write it: GDAL reads past it
-	}
-	dec := json.NewDecoder(dropRS{r})
+	defer closeFile()
 	n := 0 // features seen
 	// Each top-level object: a collection, or a Feature (the file's only
 	// one, or one of a sequence).
@@ -165,6 +161,42 @@ func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem st
 		return 0, ""
 	}
 	return fid, problem
+}
+
+// jsonStream opens the JSON file at path for reading as a stream of
+// tokens, past a UTF-8 byte order mark (as Windows editors write one:
+// GDAL reads past it) and without record separators (see dropRS).
+func jsonStream(path string) (*json.Decoder, func(), error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	r := bufio.NewReaderSize(f, 1<<20)
+	if bom, err := r.Peek(3); err == nil && string(bom) == "\xef\xbb\xbf" {
+		r.Discard(3)
+	}
+	return json.NewDecoder(dropRS{r}), func() { f.Close() }, nil
+}
+
+// skipValue reads past the next value of dec token by token, so that a
+// large one (a TopoJSON file's arcs) is never held whole.
+func skipValue(dec *json.Decoder) error {
+	depth := 0
+	for {
+		t, err := dec.Token()
+		if err != nil {
+			return err
+		}
+		switch t {
+		case json.Delim('{'), json.Delim('['):
+			depth++
+		case json.Delim('}'), json.Delim(']'):
+			depth--
+		}
+		if depth == 0 {
+			return nil
+		}
+	}
 }
 
 // dropRS reads its reader without the record separators (0x1E) that begin
@@ -319,6 +351,14 @@ func esriGeometryProblem(raw json.RawMessage) string {
 // depth-1 holds. It returns what follows that value. The bytes are
 // scanned, not decoded: a large polygon's coordinates make no values.
 func nestsNumbers(b []byte, depth int) (rest []byte, ok bool) {
+	return nestedArrays(b, depth, 2, number)
+}
+
+// nestedArrays reports whether b starts with depth arrays nested around
+// values that leaf reads (it returns what follows one, ok false when b
+// does not start with one), the innermost arrays holding at least
+// minInner of them, the others any number; and returns what follows.
+func nestedArrays(b []byte, depth, minInner int, leaf func([]byte) ([]byte, bool)) (rest []byte, ok bool) {
 	b = skipSpace(b)
 	if len(b) == 0 || b[0] != '[' {
 		return nil, false
@@ -332,28 +372,41 @@ func nestsNumbers(b []byte, depth int) (rest []byte, ok bool) {
 			}
 			b = skipSpace(b[1:])
 		}
+		var ok bool
 		if depth == 1 {
-			if len(b) == 0 || !(b[0] == '-' || (b[0] >= '0' && b[0] <= '9')) {
-				return nil, false
-			}
-			i := 1
-			for i < len(b) && strings.IndexByte("0123456789.eE+-", b[i]) >= 0 {
-				i++
-			}
-			b = skipSpace(b[i:])
+			b, ok = leaf(b)
 		} else {
-			var ok bool
-			if b, ok = nestsNumbers(b, depth-1); !ok {
-				return nil, false
-			}
-			b = skipSpace(b)
+			b, ok = nestedArrays(b, depth-1, minInner, leaf)
 		}
+		if !ok {
+			return nil, false
+		}
+		b = skipSpace(b)
 		count++
 	}
-	if len(b) == 0 || (depth == 1 && count < 2) {
+	if len(b) == 0 || (depth == 1 && count < minInner) {
 		return nil, false
 	}
 	return b[1:], true
+}
+
+// number reads the JSON number b starts with and returns what follows.
+func number(b []byte) (rest []byte, ok bool) {
+	lit, rest := numberLiteral(b)
+	return rest, lit != nil
+}
+
+// numberLiteral splits the JSON number b starts with from what follows;
+// lit is nil when b does not start with a number.
+func numberLiteral(b []byte) (lit, rest []byte) {
+	if len(b) == 0 || !(b[0] == '-' || (b[0] >= '0' && b[0] <= '9')) {
+		return nil, b
+	}
+	i := 1
+	for i < len(b) && strings.IndexByte("0123456789.eE+-", b[i]) >= 0 {
+		i++
+	}
+	return b[:i], b[i:]
 }
 
 // skipSpace drops the JSON white space at the start of b.
@@ -375,4 +428,267 @@ func jsonKind(s string) string {
 		return "true or false"
 	}
 	return "a number"
+}
+
+// topoArcDepth is, for each TopoJSON geometry type (lower case) read
+// from arcs, how deeply its "arcs" nest arrays around the arc indices: a
+// Polygon's rings of arcs 2. Points are read from "coordinates" instead.
+var topoArcDepth = map[string]int{"linestring": 1, "multilinestring": 2, "polygon": 2, "multipolygon": 3}
+
+// topoPointDepth is geoJSONDepth for TopoJSON's types read from
+// "coordinates".
+var topoPointDepth = map[string]int{"point": 1, "multipoint": 2}
+
+// brokenTopoJSON is brokenJSON for the layer named layer of the
+// TopoJSON file at path. GDAL reads each object that is a
+// GeometryCollection as a layer of that name, each of its geometries a
+// feature, and the objects that are one geometry as the features of a
+// layer "TopoJSON"; features are numbered here 1 for the first. GDAL
+// reads none of a geometry whose type is unknown or absent, or whose
+// "arcs" are not arrays (the feature is left out of the layer, or comes
+// without geometry), leaves out a ring or a polygon that refers to an arc
+// the file does not have or whose "arcs" are not indices (a Polygon with
+// none left comes empty), and reads each position of an arc that is not
+// numbers as 0, 0. The file is read twice, as a stream: once for the arcs
+// (which may come last), once for the objects.
+func brokenTopoJSON(path, layer string) (fid int, problem string) {
+	nArcs, badArc, ok := topoArcs(path)
+	if !ok {
+		return 0, ""
+	}
+	check := func(raw json.RawMessage) string { return topoGeometryProblem(raw, nArcs, badArc) }
+	dec, closeFile, err := jsonStream(path)
+	if err != nil {
+		return 0, ""
+	}
+	defer closeFile()
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return 0, ""
+	}
+	for dec.More() {
+		key, err := dec.Token()
+		if err != nil {
+			return 0, ""
+		}
+		if key != "objects" {
+			if skipValue(dec) != nil {
+				return 0, ""
+			}
+			continue
+		}
+		if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+			return 0, ""
+		}
+		n := 0 // features of the layer seen
+		for dec.More() {
+			name, err := dec.Token()
+			if err != nil {
+				return 0, ""
+			}
+			var member func(json.RawMessage) bool // nil: the collection is skipped
+			if name == layer {
+				member = func(g json.RawMessage) bool {
+					n++
+					fid, problem = n, check(g)
+					return problem == ""
+				}
+			}
+			single, ok := readTopoObject(dec, member)
+			switch {
+			case !ok:
+				return 0, ""
+			case problem != "":
+				return fid, problem
+			case single != nil && layer == "TopoJSON":
+				n++
+				if p := check(single); p != "" {
+					return n, p
+				}
+			}
+		}
+		return 0, ""
+	}
+	return 0, ""
+}
+
+// readTopoObject reads one TopoJSON object from dec: a
+// GeometryCollection, whose geometries it hands to member one at a time
+// until member returns false (it skips them when member is nil), or one
+// geometry, whose members it returns as JSON in single (nil for a
+// collection). ok is false when dec does not hold an object there.
+func readTopoObject(dec *json.Decoder, member func(json.RawMessage) bool) (single json.RawMessage, ok bool) {
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return nil, false
+	}
+	members := map[string]json.RawMessage{}
+	collection := false
+	for dec.More() {
+		key, err := dec.Token()
+		if err != nil {
+			return nil, false
+		}
+		if key != "geometries" {
+			var raw json.RawMessage
+			if err := dec.Decode(&raw); err != nil {
+				return nil, false
+			}
+			members[key.(string)] = raw
+			continue
+		}
+		collection = true
+		if member == nil {
+			if skipValue(dec) != nil {
+				return nil, false
+			}
+			continue
+		}
+		if t, err := dec.Token(); err != nil || t != json.Delim('[') {
+			return nil, false
+		}
+		for dec.More() {
+			var g json.RawMessage
+			if err := dec.Decode(&g); err != nil {
+				return nil, false
+			}
+			if !member(g) {
+				return nil, true
+			}
+		}
+		if _, err := dec.Token(); err != nil {
+			return nil, false
+		}
+	}
+	if _, err := dec.Token(); err != nil {
+		return nil, false
+	}
+	if collection {
+		return nil, true
+	}
+	one, err := json.Marshal(members)
+	return one, err == nil
+}
+
+// topoArcs reads the "arcs" of the TopoJSON file at path, one arc at a
+// time: how many there are, and which cannot be decoded (an arc must be
+// an array of positions of two or more numbers).
+func topoArcs(path string) (n int, bad map[int]bool, ok bool) {
+	dec, closeFile, err := jsonStream(path)
+	if err != nil {
+		return 0, nil, false
+	}
+	defer closeFile()
+	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
+		return 0, nil, false
+	}
+	bad = map[int]bool{}
+	for dec.More() {
+		key, err := dec.Token()
+		if err != nil {
+			return 0, nil, false
+		}
+		if key != "arcs" {
+			if skipValue(dec) != nil {
+				return 0, nil, false
+			}
+			continue
+		}
+		if t, err := dec.Token(); err != nil || t != json.Delim('[') {
+			return 0, nil, false
+		}
+		for ; dec.More(); n++ {
+			var arc json.RawMessage
+			if err := dec.Decode(&arc); err != nil {
+				return 0, nil, false
+			}
+			if rest, ok := nestsNumbers(arc, 2); !ok || len(skipSpace(rest)) != 0 {
+				bad[n] = true
+			}
+		}
+		return n, bad, true
+	}
+	return 0, nil, false
+}
+
+// topoGeometryProblem is geometryProblem for a TopoJSON geometry, whose
+// rings are lists of indices into the file's nArcs arcs (i for arc i,
+// ~i, that is -i-1, for arc i reversed); badArc holds the arcs that
+// cannot be decoded. A type null is a null geometry.
+func topoGeometryProblem(raw json.RawMessage, nArcs int, badArc map[int]bool) string {
+	var g struct {
+		Type        json.RawMessage   `json:"type"`
+		Arcs        json.RawMessage   `json:"arcs"`
+		Coordinates json.RawMessage   `json:"coordinates"`
+		Geometries  []json.RawMessage `json:"geometries"`
+	}
+	if err := json.Unmarshal(raw, &g); err != nil {
+		return "it cannot be read (" + err.Error() + ")"
+	}
+	if strings.TrimSpace(string(g.Type)) == "null" {
+		return ""
+	}
+	var typ string
+	if err := json.Unmarshal(g.Type, &typ); err != nil || typ == "" {
+		return "its geometry has no \"type\" (Polygon, MultiPolygon, ...)"
+	}
+	lower := strings.ToLower(typ)
+	if lower == "geometrycollection" {
+		for i, m := range g.Geometries {
+			if p := topoGeometryProblem(m, nArcs, badArc); p != "" {
+				return fmt.Sprintf("member %d of its GeometryCollection: %s", i+1, strings.TrimPrefix(p, "its "))
+			}
+		}
+		return ""
+	}
+	if depth, ok := topoPointDepth[lower]; ok {
+		if rest, ok := nestsNumbers(g.Coordinates, depth); !ok || len(skipSpace(rest)) != 0 {
+			return fmt.Sprintf("its %s's \"coordinates\" are not numbers nested as %s", typ, geoJSONShape[lower])
+		}
+		return ""
+	}
+	depth, ok := topoArcDepth[lower]
+	if !ok {
+		return fmt.Sprintf("its geometry type %q is not a TopoJSON type (Point, MultiPoint, LineString, MultiLineString, Polygon, MultiPolygon, GeometryCollection)", typ)
+	}
+	if a := strings.TrimSpace(string(g.Arcs)); a == "" || a == "null" {
+		return fmt.Sprintf("its %s has no \"arcs\"", typ)
+	}
+	problem := ""
+	index := func(b []byte) ([]byte, bool) {
+		lit, rest := numberLiteral(b)
+		i, err := strconv.Atoi(string(lit))
+		if err != nil {
+			return nil, false
+		}
+		arc := i
+		if i < 0 {
+			arc = -i - 1
+		}
+		switch {
+		case arc >= nArcs:
+			problem = fmt.Sprintf("its %s refers to arc %d, but the file's \"arcs\" hold %d (numbered from 0)", typ, i, nArcs)
+			if i < 0 {
+				problem = fmt.Sprintf("its %s refers to arc %d (arc %d reversed), but the file's \"arcs\" hold %d (numbered from 0)", typ, i, arc, nArcs)
+			}
+			return nil, false
+		case badArc[arc]:
+			problem = fmt.Sprintf("its %s refers to arc %d, whose positions are not numbers nested as an array of [x, y] pairs (the file's \"arcs\" are numbered from 0)", typ, arc)
+			return nil, false
+		}
+		return rest, true
+	}
+	if rest, ok := nestedArrays(g.Arcs, depth, 0, index); !ok || len(skipSpace(rest)) != 0 {
+		if problem != "" {
+			return problem
+		}
+		return fmt.Sprintf("its %s's \"arcs\" are not arc indices nested as %s", typ, topoArcShape[lower])
+	}
+	return ""
+}
+
+// topoArcShape says, for the message, how each type's "arcs" nest.
+var topoArcShape = map[string]string{
+	"linestring":      "one array of arc indices",
+	"multilinestring": "an array of lines, each an array of arc indices",
+	"polygon":         "an array of rings, each an array of arc indices",
+	"multipolygon":    "an array of polygons, each an array of rings of arc indices",
 }

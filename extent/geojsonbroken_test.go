@@ -285,3 +285,187 @@ func TestValidJSONDialectsNotRefused(t *testing.T) {
 		})
 	}
 }
+
+// topoUnits is a TopoJSON topology of one object "units" of three
+// features: a, a square of 1 by 1 degree with a hole of 0.6 by 0.6; b,
+// the square east of it, sharing its west edge with a's east edge (arc 0
+// reversed, ~0 = -1); c, given by the caller (its "type" and "arcs"),
+// whose arcs 3 and 4 are squares of 1 by 1 further east. An object
+// "other", a line GDAL reads as the layer "TopoJSON", refers to an arc
+// the file does not have: it is not the layer read. arcs replaces
+// the arcs when not "" and transform, when not "", is added.
+func topoUnits(c, arcs, transform string) string {
+	if arcs == "" {
+		arcs = `[
+ [[-139,-40],[-139,-39]],
+ [[-139,-39],[-140,-39],[-140,-40],[-139,-40]],
+ [[-139,-40],[-138,-40],[-138,-39],[-139,-39]],
+ [[-137,-40],[-136,-40],[-136,-39],[-137,-39],[-137,-40]],
+ [[-135,-40],[-134,-40],[-134,-39],[-135,-39],[-135,-40]],
+ [[-139.8,-39.8],[-139.8,-39.2],[-139.2,-39.2],[-139.2,-39.8],[-139.8,-39.8]]
+]`
+	}
+	if transform != "" {
+		transform = `"transform":` + transform + `,`
+	}
+	return `{"type":"Topology",` + transform + `"objects":{"other":{"type":"LineString","arcs":[99]},"units":{"type":"GeometryCollection","geometries":[
+ {"type":"Polygon","arcs":[[0,1],[5]],"properties":{"u":"a"}},
+ {"type":"Polygon","arcs":[[-1,2]],"properties":{"u":"b"}},
+ ` + c + `]}},"arcs":` + arcs + `}`
+}
+
+// TestBrokenTopoJSONGeometryRefused: GDAL reads no CRS from a TopoJSON
+// file, so a TopoJSON layer is refused, with the advice to save it with
+// its CRS (as ogr2ogr -a_srs does); but that conversion would leave out
+// without a word what GDAL cannot decode, so a feature with a geometry
+// GDAL cannot decode is named first. Before, each of these was only
+// "has no CRS; give it the one its coordinates are in", and the
+// converted file lacked what the comment says.
+func TestBrokenTopoJSONGeometryRefused(t *testing.T) {
+	Register()
+	badArc := `[
+ [[-139,-40],[-139,-39]],
+ [[-139,-39],[-140,-39],[-140,-40],[-139,-40]],
+ [[-139,-40],[-138,-40],[-138,-39],[-139,-39]],
+ [["a","b"],[-136,-40],[-136,-39],[-137,-39],["a","b"]],
+ [[-135,-40],[-134,-40],[-134,-39],[-135,-39],[-135,-40]],
+ [[-139.8,-39.8],[-139.8,-39.2],[-139.2,-39.2],[-139.2,-39.8],[-139.8,-39.8]]
+]`
+	for _, c := range []struct {
+		name, c, arcs string
+		want          string // in the error, after "feature 3 has a geometry that cannot be decoded: "; "" for none
+	}{
+		// Converted, the feature came empty (no geometry).
+		{"an arc out of range", `{"type":"Polygon","arcs":[[9]],"properties":{"u":"c"}}`, "", `its Polygon refers to arc 9, but the file's "arcs" hold 6 (numbered from 0)`},
+		{"a reversed arc out of range", `{"type":"Polygon","arcs":[[-10]],"properties":{"u":"c"}}`, "", `its Polygon refers to arc -10 (arc 9 reversed), but the file's "arcs" hold 6`},
+		{"an arc index a string", `{"type":"Polygon","arcs":[["3"]],"properties":{"u":"c"}}`, "", `its Polygon's "arcs" are not arc indices nested as an array of rings, each an array of arc indices`},
+		{"arcs not rings", `{"type":"Polygon","arcs":[3],"properties":{"u":"c"}}`, "", `its Polygon's "arcs" are not arc indices nested`},
+		{"an arc a string", `{"type":"Polygon","arcs":[[3]],"properties":{"u":"c"}}`, strings.Replace(badArc, `[["a","b"],[-136,-40],[-136,-39],[-137,-39],["a","b"]]`, `"abc"`, 1), `its Polygon refers to arc 3, whose positions are not numbers`},
+		// Converted, the feature was left out of the layer.
+		{"no arcs", `{"type":"Polygon","properties":{"u":"c"}}`, "", `its Polygon has no "arcs"`},
+		{"arcs a string", `{"type":"Polygon","arcs":"abc","properties":{"u":"c"}}`, "", `its Polygon's "arcs" are not arc indices nested`},
+		{"no type", `{"arcs":[[3]],"properties":{"u":"c"}}`, "", `its geometry has no "type"`},
+		// Converted, the feature had no geometry.
+		{"unknown type", `{"type":"Polygn","arcs":[[3]],"properties":{"u":"c"}}`, "", `its geometry type "Polygn" is not a TopoJSON type`},
+		// Converted, the hole or the second polygon was left out.
+		{"a hole out of range", `{"type":"Polygon","arcs":[[3],[9]],"properties":{"u":"c"}}`, "", `its Polygon refers to arc 9`},
+		{"a hole a string", `{"type":"Polygon","arcs":[[3],"abc"],"properties":{"u":"c"}}`, "", `its Polygon's "arcs" are not arc indices nested`},
+		{"a second polygon out of range", `{"type":"MultiPolygon","arcs":[[[3]],[[9]]],"properties":{"u":"c"}}`, "", `its MultiPolygon refers to arc 9`},
+		// Converted, the arc's positions that are not numbers were read
+		// as 0, 0: the unit reached out to 0° E, 0° N, 87 square degrees
+		// instead of 1.
+		{"an arc's positions strings", `{"type":"Polygon","arcs":[[3]],"properties":{"u":"c"}}`, badArc, `its Polygon refers to arc 3, whose positions are not numbers nested as an array of [x, y] pairs`},
+		// Valid: only the CRS is missing.
+		{"valid", `{"type":"Polygon","arcs":[[3]],"properties":{"u":"c"}}`, "", ""},
+		{"valid multipolygon", `{"type":"MultiPolygon","arcs":[[[3]],[[4]]],"properties":{"u":"c"}}`, "", ""},
+		{"a null geometry", `{"type":null,"properties":{"u":"c"}}`, "", ""},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			p := filepath.Join(t.TempDir(), "units.topojson")
+			if err := os.WriteFile(p, []byte(topoUnits(c.c, c.arcs, "")), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			src, _, err := openPolygons(p, "u")
+			if err == nil {
+				src.close()
+				t.Fatal("a TopoJSON layer was read, although GDAL gives it no CRS")
+			}
+			msg := err.Error()
+			if c.want == "" {
+				if !strings.Contains(msg, p+` layer "units" has no CRS: GDAL reads none from a TopoJSON file; save it with the CRS`) || strings.Contains(msg, "cannot be decoded") {
+					t.Fatalf("err = %v, want only the missing CRS", err)
+				}
+				return
+			}
+			if want := p + ` layer "units" feature 3 has a geometry that cannot be decoded: ` + c.want; !strings.Contains(msg, want) || !strings.Contains(msg, "ogr2ogr -a_srs") {
+				t.Fatalf("err = %v\nwant it to say %q and how to give the CRS", err, want)
+			}
+		})
+	}
+	// Objects that are one geometry each are the features of GDAL's
+	// layer "TopoJSON", in the order of the objects; a collection among
+	// them is a layer of its own.
+	t.Run("objects of one geometry", func(t *testing.T) {
+		p := filepath.Join(t.TempDir(), "units.topojson")
+		body := `{"type":"Topology","objects":{"a":{"type":"Polygon","arcs":[[0]]},"rest":{"type":"GeometryCollection","geometries":[{"type":"Polygon","arcs":[[7]]}]},"b":{"type":"Polygon","arcs":[[0],[8]]}},"arcs":[[[-140,-40],[-139,-40],[-139,-39],[-140,-40]]]}`
+		if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if n, why := brokenTopoJSON(p, "TopoJSON"); n != 2 || !strings.Contains(why, "refers to arc 8") {
+			t.Fatalf("brokenTopoJSON = %d, %q; want feature 2, arc 8", n, why)
+		}
+		if n, why := brokenTopoJSON(p, "rest"); n != 1 || !strings.Contains(why, "refers to arc 7") {
+			t.Fatalf("brokenTopoJSON of layer rest = %d, %q; want feature 1, arc 7", n, why)
+		}
+	})
+}
+
+// TestValidTopoJSONRead: topologies GDAL reads whole, plain and
+// quantized (a "transform", each arc's positions after the first as
+// differences), with a hole and an edge shared by two units (one arc,
+// reversed for the second), are not refused by brokenTopoJSON, and once
+// given a CRS (as the refusal advises) are read with every unit whole.
+func TestValidTopoJSONRead(t *testing.T) {
+	Register()
+	// The arcs of topoUnits on a grid of 0.001 degree from (-141, -41).
+	quantized := `[
+ [[2000,1000],[0,1000]],
+ [[2000,2000],[-1000,0],[0,-1000],[1000,0]],
+ [[2000,1000],[1000,0],[0,1000],[-1000,0]],
+ [[4000,1000],[1000,0],[0,1000],[-1000,0],[0,-1000]],
+ [[6000,1000],[1000,0],[0,1000],[-1000,0],[0,-1000]],
+ [[1200,1200],[0,600],[600,0],[0,-600],[-600,0]]
+]`
+	c := `{"type":"MultiPolygon","arcs":[[[3]],[[4]]],"properties":{"u":"c"}}`
+	for _, v := range []struct{ name, body string }{
+		{"plain", topoUnits(c, "", "")},
+		{"quantized", topoUnits(c, quantized, `{"scale":[0.001,0.001],"translate":[-141,-41]}`)},
+	} {
+		t.Run(v.name, func(t *testing.T) {
+			dir := t.TempDir()
+			p := filepath.Join(dir, "units.topojson")
+			if err := os.WriteFile(p, []byte(v.body), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			if n, why := brokenTopoJSON(p, "units"); n != 0 {
+				t.Fatalf("brokenTopoJSON = %d, %q on a valid file", n, why)
+			}
+			ds, err := godal.Open(p, godal.VectorOnly())
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer ds.Close()
+			gpkg := filepath.Join(dir, "units.gpkg")
+			out, err := ds.VectorTranslate(gpkg, []string{"-f", "GPKG", "-a_srs", "EPSG:4326", "units"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			out.Close()
+			src, _, err := openPolygons(gpkg, "u")
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer src.close()
+			var warns []string
+			byID, order, err := src.unionByID(&warns)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer func() {
+				for _, g := range byID {
+					g.Close()
+				}
+			}()
+			if len(order) != 3 || len(warns) != 0 {
+				t.Fatalf("ids %q, warnings %q; want 3 ids and no warning", order, warns)
+			}
+			// Square degrees, worked by hand (the tolerance is ours): a's 1
+			// less its hole's 0.36, b's 1, c's two squares of 1.
+			for id, want := range map[string]float64{"a": 0.64, "b": 1, "c": 2} {
+				if got := byID[id].Area(); math.Abs(got-want) > 1e-9 {
+					t.Errorf("unit %s: area %g square degrees, want %g", id, got, want)
+				}
+			}
+		})
+	}
+}

@@ -346,13 +346,23 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		return warns, fmt.Errorf("extent: %s layer %q has no geometry (a table, not polygons); give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path, layer.Name())
 	}
 	lsr := layer.SpatialRef()
-	if lsr == nil {
-		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
+	wkt := ""
+	if lsr != nil {
+		if w, err := lsr.WKT(); err == nil {
+			wkt = w
+		}
 	}
-	if w, err := lsr.WKT(); err != nil || w == "" {
+	if wkt == "" || undefinedCRS(wkt) {
+		if lsr != nil {
+			lsr.Close()
+		}
+		switch {
+		case wkt != "":
+			return warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(wkt), path)
+		case s.ds.Driver().ShortName() == "TopoJSON":
+			return warns, topoJSONNoCRS(path, layer.Name())
+		}
 		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
-	} else if undefinedCRS(w) {
-		return warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
 	s.lsr = lsr
 	s.closes = append(s.closes, func() { lsr.Close() })
@@ -485,6 +495,19 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
 	}
 	return byID, order, nil
+}
+
+// topoJSONNoCRS is the refusal of a TopoJSON layer: GDAL reads no CRS
+// from one, so the user must convert it, giving it the CRS, and the
+// conversion would drop without a word what GDAL cannot decode (see
+// brokenTopoJSON): such a feature is named first, to be corrected
+// before.
+func topoJSONNoCRS(path, layer string) error {
+	convert := fmt.Sprintf("save it with the CRS its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s %s if they are longitudes and latitudes) and give that file", path, layer)
+	if n, why := brokenTopoJSON(path, layer); n > 0 {
+		return fmt.Errorf("extent: %s layer %q feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor) first, as converting the file would leave it or that part out without a word; then %s (GDAL reads no CRS from a TopoJSON file)", path, layer, n, why, convert)
+	}
+	return fmt.Errorf("extent: %s layer %q has no CRS: GDAL reads none from a TopoJSON file; %s", path, layer, convert)
 }
 
 // brokenGeometry refuses a feature of a JSON file whose geometry GDAL
