@@ -91,7 +91,8 @@ func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem st
 		return 0, ""
 	}
 	defer closeFile()
-	n := 0 // features seen
+	n := 0                       // features seen
+	objects, collections := 0, 0 // top-level objects seen, and collections among them
 	// Each top-level object: a collection, or a Feature (the file's only
 	// one, or one of a sequence).
 	for {
@@ -148,6 +149,10 @@ func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem st
 		if _, err := dec.Token(); err != nil {
 			return 0, ""
 		}
+		objects++
+		if collection {
+			collections++
+		}
 		if hasSingle && !collection {
 			n++
 			if fid == 0 {
@@ -157,7 +162,9 @@ func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem st
 			}
 		}
 	}
-	if read >= 0 && n != read {
+	if (read >= 0 && n != read) || (collections > 0 && objects > 1) {
+		// A collection followed by more is no file GDAL reads: its own
+		// message (the JSON is not valid there) is the one to give.
 		return 0, ""
 	}
 	return fid, problem

@@ -161,6 +161,25 @@ func TestBrokenGeoJSONSingleFeature(t *testing.T) {
 	if n, _ := brokenJSON(p, geoJSONDialect, 2); n != 0 {
 		t.Fatalf("brokenJSON with a count that differs = %d, want 0", n)
 	}
+	// Two Features one after the other are a GeoJSONSeq file: the first
+	// is feature 1, the second 2.
+	good := `{"type":"Feature","properties":{},"geometry":null}`
+	if err := os.WriteFile(p, []byte(good+"\n"+body+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if n, _ := brokenJSON(p, geoJSONDialect, -1); n != 2 {
+		t.Fatalf("brokenJSON of a sequence = %d, want 2", n)
+	}
+	// A collection followed by another is no file GDAL opens (it says
+	// the JSON is not valid at line 2, which is the message to give): no
+	// feature is named. Before, its second feature was named.
+	coll := `{"type":"FeatureCollection","features":[` + good + `,` + body + `]}`
+	if err := os.WriteFile(p, []byte(coll+"\n"+coll+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if n, why := brokenJSON(p, geoJSONDialect, -1); n != 0 {
+		t.Fatalf("brokenJSON of two collections = %d, %q; want 0", n, why)
+	}
 }
 
 // TestBrokenESRIJSONGeometryRefused: a feature of ArcGIS's JSON (an
