@@ -157,10 +157,11 @@ type polygonSource struct {
 	// that feature repairs.
 	invalid map[int]bool
 
-	// geoJSON is whether GDAL opened the file as GeoJSON (s.ds may be a
-	// flattened copy in memory since): brokenGeoJSON can then tell a
-	// feature without geometry from one whose geometry cannot be decoded.
-	geoJSON bool
+	// dialect is the JSON format of the file as GDAL opened it (s.ds may
+	// be a flattened copy in memory since), notJSON for other formats:
+	// brokenJSON can then tell a feature without geometry from one whose
+	// geometry cannot be decoded.
+	dialect jsonDialect
 }
 
 func (s *polygonSource) close() {
@@ -193,7 +194,7 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 		return nil, nil, openVectorError(path, err)
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
-	s.geoJSON = ds.Driver().ShortName() == "GeoJSON"
+	s.dialect = dialectOfDriver(ds.Driver().ShortName())
 	warns, err := s.ready(field)
 	if err != nil {
 		s.close()
@@ -226,10 +227,11 @@ func openVectorError(path string, err error) error {
 		r.Close()
 		return fmt.Errorf("extent: %s is a raster, not a vector file of polygons; give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path)
 	}
-	if n, why := brokenGeoJSON(path, -1); n > 0 {
-		// GDAL refuses a GeoJSON file for some broken geometries
-		// (coordinates that are text, a Polygon without "coordinates")
-		// naming neither the feature nor the file's line.
+	if n, why := brokenJSON(path, sniffDialect(path), -1); n > 0 {
+		// GDAL refuses a GeoJSON or ArcGIS JSON file for some broken
+		// geometries (coordinates that are text, a Polygon without
+		// "coordinates", "rings" that are not an array) naming neither
+		// the feature nor the file's line.
 		return fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", path, n, why)
 	}
 	cause := gdalmsg.Cause(err.Error())
@@ -344,13 +346,23 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		return warns, fmt.Errorf("extent: %s layer %q has no geometry (a table, not polygons); give the polygons' file (GeoPackage, shapefile, GeoJSON, ...)", path, layer.Name())
 	}
 	lsr := layer.SpatialRef()
-	if lsr == nil {
-		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
+	wkt := ""
+	if lsr != nil {
+		if w, err := lsr.WKT(); err == nil {
+			wkt = w
+		}
 	}
-	if w, err := lsr.WKT(); err != nil || w == "" {
+	if wkt == "" || undefinedCRS(wkt) {
+		if lsr != nil {
+			lsr.Close()
+		}
+		switch {
+		case wkt != "":
+			return warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(wkt), path)
+		case s.ds.Driver().ShortName() == "TopoJSON":
+			return warns, topoJSONNoCRS(path, layer.Name())
+		}
 		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
-	} else if undefinedCRS(w) {
-		return warns, fmt.Errorf("extent: %s layer %q has an undefined CRS (%s); assign the real one (e.g. ogr2ogr -a_srs EPSG:4326 out.gpkg %s)", path, layer.Name(), crsName(w), path)
 	}
 	s.lsr = lsr
 	s.closes = append(s.closes, func() { lsr.Close() })
@@ -458,7 +470,7 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 		}
 		byID[id] = un
 	}
-	if s.geoJSON {
+	if s.dialect != notJSON {
 		if err := s.brokenGeometry(fid-1, empty); err != nil {
 			for _, un := range byID {
 				un.Close()
@@ -485,12 +497,25 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 	return byID, order, nil
 }
 
-// brokenGeometry refuses a GeoJSON feature whose geometry GDAL could not
-// decode whole (see brokenGeoJSON; read features were read, those in
+// topoJSONNoCRS is the refusal of a TopoJSON layer: GDAL reads no CRS
+// from one, so the user must convert it, giving it the CRS, and the
+// conversion would drop without a word what GDAL cannot decode (see
+// brokenTopoJSON): such a feature is named first, to be corrected
+// before.
+func topoJSONNoCRS(path, layer string) error {
+	convert := fmt.Sprintf("save it with the CRS its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s %s if they are longitudes and latitudes) and give that file", path, layer)
+	if n, why := brokenTopoJSON(path, layer); n > 0 {
+		return fmt.Errorf("extent: %s layer %q feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor) first, as converting the file would leave it or that part out without a word; then %s (GDAL reads no CRS from a TopoJSON file)", path, layer, n, why, convert)
+	}
+	return fmt.Errorf("extent: %s layer %q has no CRS: GDAL reads none from a TopoJSON file; %s", path, layer, convert)
+}
+
+// brokenGeometry refuses a feature of a JSON file whose geometry GDAL
+// could not decode whole (see brokenJSON; read features were read, those in
 // empty without a geometry): one it handed over as none, or one it read
 // without a part.
 func (s *polygonSource) brokenGeometry(read int, empty []int) error {
-	n, why := brokenGeoJSON(s.path, read)
+	n, why := brokenJSON(s.path, s.dialect, read)
 	if n == 0 {
 		return nil
 	}

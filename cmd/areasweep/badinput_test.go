@@ -380,6 +380,21 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	ecoEmpty := f.file("eco_empty.geojson", polygonJSON(squareGeom, `"unit":""`))
 	ecoGood := f.file("eco_good.geojson", polygonJSON(squareGeom, `"unit":"a"`))
 	ecoPoint := f.file("eco_point.geojson", polygonJSON(`{"type":"Point","coordinates":[14,43]}`, `"unit":"a"`))
+	// A GeoJSONSeq region whose second feature's type is misspelt, and
+	// ArcGIS JSON units whose second feature has a hole "abc": GDAL
+	// hands both over without geometry, and before, the feature was
+	// skipped with the warning for one without geometry.
+	seqBroken := f.file("region.geojsonl", `{"type":"Feature","properties":{},"geometry":`+squareGeom+`}`+"\n"+
+		`{"type":"Feature","properties":{},"geometry":{"type":"Polygn","coordinates":[[[18.5,41.5],[21,41.5],[21,46.5],[18.5,41.5]]]}}`+"\n")
+	// A TopoJSON region (GDAL reads no CRS from one) whose second
+	// feature refers to an arc the file does not have: before, only "has
+	// no CRS", and the conversion advised made that feature empty.
+	topoBroken := f.file("region.topojson", `{"type":"Topology","objects":{"region":{"type":"GeometryCollection","geometries":[`+
+		`{"type":"Polygon","arcs":[[0]]},{"type":"Polygon","arcs":[[1],[5]]}]}},`+
+		`"arcs":[[[12.5,41.5],[18.5,41.5],[18.5,46.5],[12.5,46.5],[12.5,41.5]],[[18.5,41.5],[21,41.5],[21,46.5],[18.5,46.5],[18.5,41.5]]]}`)
+	esriBroken := f.file("units_query.json", `{"geometryType":"esriGeometryPolygon","spatialReference":{"wkid":4326},"fields":[{"name":"unit","type":"esriFieldTypeString","length":8}],"features":[`+
+		`{"attributes":{"unit":"a"},"geometry":{"rings":[[[12.5,41.5],[12.5,46.5],[18.5,46.5],[18.5,41.5],[12.5,41.5]]]}},`+
+		`{"attributes":{"unit":"b"},"geometry":{"rings":[[[18.5,41.5],[18.5,46.5],[21,46.5],[21,41.5],[18.5,41.5]],"abc"]}}]}`)
 	// A GeoTIFF as a desktop GIS exports it: .tif, .tfw and a .prj,
 	// which GDAL does not read beside a GeoTIFF.
 	tifPrj := filepath.Join(f.dir, "tifprj.tif")
@@ -666,6 +681,9 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
 		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
 		{"region whose features all lack a geometry", f.withRegion(noGeometries), 2, []string{"nogeometries.geojson", "none of its 2 feature(s) has a geometry GDAL can read", "export them again"}, "", ""},
+		{"region GeoJSONSeq with a geometry that cannot be decoded", f.withRegion(seqBroken), 2, []string{"region.geojsonl feature 2 has a geometry that cannot be decoded", `"Polygn"`, "set its \"geometry\" to null"}, "", ""},
+		{"region TopoJSON with an arc it does not have", f.withRegion(topoBroken), 2, []string{`region.topojson layer "region" feature 2 has a geometry that cannot be decoded`, "refers to arc 5", "ogr2ogr -a_srs EPSG:4326"}, "", ""},
+		{"ecoregions ArcGIS JSON with a hole that cannot be decoded", f.run("--ecoregions", esriBroken, "--ecoregion-field", "unit"), 2, []string{"ecoregions: ", "units_query.json feature 2 has a geometry that cannot be decoded", `its "rings" are not numbers`}, "", ""},
 		{"region point", f.withRegion(pointLayer), 2, []string{"point.geojson feature 1", "point"}, "", ""},
 		{"region line", f.withRegion(lineLayer), 2, []string{"line.geojson feature 1", "linestring"}, "", ""},
 		{"region degenerate polygon", f.withRegion(degenerate), 2, []string{"degenerate.geojson feature 1", "degenerate"}, "", ""},
