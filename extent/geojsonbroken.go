@@ -79,13 +79,35 @@ func sniffDialect(path string) jsonDialect {
 // The file is read as a stream, one feature at a time, so that a large
 // file is never held whole in memory.
 func brokenJSON(path string, dialect jsonDialect, read int) (fid int, problem string) {
-	check := geometryProblem
 	switch dialect {
-	case notJSON:
-		return 0, ""
+	case geoJSONDialect:
+		return scanJSON(path, read, geometryProblem)
 	case esriJSONDialect:
-		check = esriGeometryProblem
+		return scanJSON(path, read, esriGeometryProblem)
 	}
+	return 0, ""
+}
+
+// openRingJSON returns the first feature (numbered 1 for the first) of
+// the GeoJSON, GeoJSONSeq or ArcGIS JSON file at path (dialect says
+// which) that holds a polygon ring not ending at its first point, and
+// which ring; 0 when there is none. GDAL refuses the whole file for such
+// a ring without naming the feature: this names it.
+func openRingJSON(path string, dialect jsonDialect) (fid int, ring string) {
+	switch dialect {
+	case geoJSONDialect:
+		return scanJSON(path, -1, geoJSONOpenRing)
+	case esriJSONDialect:
+		return scanJSON(path, -1, esriOpenRing)
+	}
+	return 0, ""
+}
+
+// scanJSON reads the features of the GeoJSON, GeoJSONSeq or ArcGIS JSON
+// file at path as a stream and returns the first (numbered 1 for the
+// first) whose "geometry" member check finds something wrong with, and
+// what; see brokenJSON for read.
+func scanJSON(path string, read int, check func(json.RawMessage) string) (fid int, problem string) {
 	dec, closeFile, err := jsonStream(path)
 	if err != nil {
 		return 0, ""
@@ -698,4 +720,71 @@ var topoArcShape = map[string]string{
 	"multilinestring": "an array of lines, each an array of arc indices",
 	"polygon":         "an array of rings, each an array of arc indices",
 	"multipolygon":    "an array of polygons, each an array of rings of arc indices",
+}
+
+// geoJSONOpenRing names the first ring of a GeoJSON geometry (raw JSON,
+// as geometryProblem takes it) whose last position is not its first
+// (compared on x and y, as GDAL tests a ring for being closed): "" when
+// every ring is closed or the geometry is no polygon.
+func geoJSONOpenRing(raw json.RawMessage) string {
+	var g struct {
+		Type        string            `json:"type"`
+		Coordinates json.RawMessage   `json:"coordinates"`
+		Geometries  []json.RawMessage `json:"geometries"`
+	}
+	if json.Unmarshal(raw, &g) != nil {
+		return ""
+	}
+	switch strings.ToLower(g.Type) {
+	case "polygon":
+		var rings [][][]float64
+		if json.Unmarshal(g.Coordinates, &rings) == nil {
+			return openRing(rings, "its Polygon")
+		}
+	case "multipolygon":
+		var polys [][][][]float64
+		if json.Unmarshal(g.Coordinates, &polys) == nil {
+			for i, rings := range polys {
+				if w := openRing(rings, fmt.Sprintf("polygon %d of its MultiPolygon", i+1)); w != "" {
+					return w
+				}
+			}
+		}
+	case "geometrycollection":
+		for i, m := range g.Geometries {
+			if w := geoJSONOpenRing(m); w != "" {
+				return fmt.Sprintf("member %d of its GeometryCollection: %s", i+1, strings.TrimPrefix(w, "its "))
+			}
+		}
+	}
+	return ""
+}
+
+// esriOpenRing is geoJSONOpenRing for an ArcGIS JSON geometry's "rings".
+func esriOpenRing(raw json.RawMessage) string {
+	var g struct {
+		Rings [][][]float64 `json:"rings"`
+	}
+	if json.Unmarshal(raw, &g) != nil {
+		return ""
+	}
+	return openRing(g.Rings, "its \"rings\"")
+}
+
+// openRing names the first of rings (each a list of positions) whose last
+// position differs from its first in x or y, as "ring k of what ends at
+// (x, y), not at its first point (x0, y0)"; "" when there is none.
+func openRing(rings [][][]float64, what string) string {
+	for k, r := range rings {
+		if len(r) == 0 || len(r[0]) < 2 || len(r[len(r)-1]) < 2 {
+			continue
+		}
+		a, b := r[0], r[len(r)-1]
+		if a[0] != b[0] || a[1] != b[1] {
+			return fmt.Sprintf("ring %d of %s ends at (%s, %s), not at its first point (%s, %s)", k+1, what,
+				strconv.FormatFloat(b[0], 'g', -1, 64), strconv.FormatFloat(b[1], 'g', -1, 64),
+				strconv.FormatFloat(a[0], 'g', -1, 64), strconv.FormatFloat(a[1], 'g', -1, 64))
+		}
+	}
+	return ""
 }

@@ -213,8 +213,8 @@ func TestUnreadablePolygonFileAdvice(t *testing.T) {
 	}{
 		{garbage, []string{"region.gpkg is not a vector file GDAL can read (no format GDAL knows matches its content)", "give a GeoPackage, shapefile", "opens in a GIS"},
 			[]string{"not recognized", "`"}},
-		{open, []string{"open.geojson is not a vector file GDAL can read (a polygon's ring does not end at its first point)", "close each ring"},
-			[]string{"configuration option", "Non closed"}},
+		{open, []string{"open.geojson feature 1: ring 1 of its Polygon ends at (0.5, 3), not at its first point (0.5, 0.5)", "close the ring"},
+			[]string{"configuration option", "Non closed", "-makevalid closes"}},
 	} {
 		_, _, err := ReadShape(tc.path, g)
 		if err == nil {

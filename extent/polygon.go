@@ -74,7 +74,7 @@ func ReadShape(path string, g *Grid) (Shape, []string, error) {
 func vectorAdvice(cause string) string {
 	switch {
 	case cause == gdalmsg.OpenRing:
-		return "; close each ring (repeat its first point at its end), for example by exporting the file again from a GIS or with ogr2ogr -makevalid"
+		return "; close each ring (repeat its first point at its end) in the program that made the file; converting it with ogr2ogr, even with -makevalid, does not close a ring"
 	case strings.Contains(cause, "SHAPE_RESTORE_SHX"):
 		return "; a shapefile is several files (.shp, .shx, .dbf, .prj) that must stay together: copy the missing ones beside it, or export the layer again as a GeoPackage"
 	case cause == gdalmsg.UnknownFormat:
@@ -235,6 +235,11 @@ func openVectorError(path string, err error) error {
 		return fmt.Errorf("extent: %s feature %d has a geometry that cannot be decoded: %s; correct it (in a text editor or a GIS), or remove the feature, or set its \"geometry\" to null to have it skipped", path, n, why)
 	}
 	cause := gdalmsg.Cause(err.Error())
+	if cause == gdalmsg.OpenRing {
+		if n, ring := openRingJSON(path, sniffDialect(path)); n > 0 {
+			return fmt.Errorf("extent: %s feature %d: %s%s", path, n, ring, closeRingAdvice)
+		}
+	}
 	if abs, aerr := filepath.Abs(path); aerr == nil && len(abs) > MaxSQLitePath && strings.Contains(cause, "unable to open database file") {
 		// The file may be fine: SQLite, which GDAL reads a GeoPackage
 		// with, opens no longer path.
@@ -613,6 +618,11 @@ func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *goda
 	if s.invalid[fid] {
 		fixed, err := makeValid(geom, s.lsr)
 		if err != nil {
+			if ring := openRingOf(geom); ring != "" {
+				// A driver that reads an open ring without a word (KML):
+				// GEOS cannot build it, let alone repair it.
+				return "", nil, fmt.Errorf("extent: %s feature %d: %s%s", path, fid, ring, closeRingAdvice)
+			}
 			return "", nil, fmt.Errorf("extent: %s feature %d has invalid geometry (e.g. a self-intersection) that GDAL could not repair (%v); fix it in a GIS", path, fid, err)
 		}
 		defer fixed.Close()
@@ -1241,6 +1251,56 @@ func invalidFeatures(path string, layer godal.Layer) (bad []int, why []string, e
 		f.Close()
 	}
 	return bad, why, nil
+}
+
+// closeRingAdvice is what to do about a ring that does not end at its
+// first point. GDAL's ogr2ogr copies such a ring as it is, and its
+// -makevalid fails on it (GEOS cannot build the ring), so neither is
+// advised.
+const closeRingAdvice = "; close the ring (repeat its first point at its end) in a text editor or in the program that made the file; converting the file with ogr2ogr, even with -makevalid, does not close a ring"
+
+// openRingOf names the first ring of g (a polygon, a multipolygon or a
+// collection of them) whose last vertex is not its first, as openRing
+// does; "" when there is none.
+func openRingOf(g *godal.Geometry) string {
+	b, err := g.WKB()
+	if err != nil {
+		return ""
+	}
+	og, err := wkb.Unmarshal(b)
+	if err != nil {
+		return ""
+	}
+	return orbOpenRing(og)
+}
+
+func orbOpenRing(g orb.Geometry) string {
+	rings := func(p orb.Polygon) [][][]float64 {
+		out := make([][][]float64, len(p))
+		for i, r := range p {
+			for _, pt := range r {
+				out[i] = append(out[i], []float64{pt[0], pt[1]})
+			}
+		}
+		return out
+	}
+	switch v := g.(type) {
+	case orb.Polygon:
+		return openRing(rings(v), "its polygon")
+	case orb.MultiPolygon:
+		for i, p := range v {
+			if w := openRing(rings(p), fmt.Sprintf("polygon %d of its multipolygon", i+1)); w != "" {
+				return w
+			}
+		}
+	case orb.Collection:
+		for i, m := range v {
+			if w := orbOpenRing(m); w != "" {
+				return fmt.Sprintf("member %d of its collection: %s", i+1, strings.TrimPrefix(w, "its "))
+			}
+		}
+	}
+	return ""
 }
 
 // nonFiniteVertex returns the first vertex of g with a NaN or infinite
