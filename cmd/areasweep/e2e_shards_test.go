@@ -49,30 +49,7 @@ func TestEndToEndShardsAndWorkers(t *testing.T) {
 			}
 			dir := t.TempDir()
 			study := writeE2EStudy(t, st, g, dir)
-			args := func(out string, extra ...string) []string {
-				return append([]string{"run", "--study", study, "--quiet", "--out", out}, extra...)
-			}
-			single := filepath.Join(dir, "single")
-			if _, se, code := runBin(t, args(single)...); code != 0 {
-				t.Fatalf("single run: exit %d: %s", code, se)
-			}
-			same := comparedOutputs(t, single)
-			for _, w := range []int{1, 3} {
-				out := filepath.Join(dir, fmt.Sprintf("workers-%d", w))
-				if _, se, code := runBin(t, args(out, "--workers", fmt.Sprint(w))...); code != 0 {
-					t.Fatalf("--workers %d: exit %d: %s", w, code, se)
-				}
-				sameOutputs(t, single, out, same, fmt.Sprintf("--workers %d", w))
-			}
-			for _, n := range e2eShardCounts {
-				sub := filepath.Join(dir, fmt.Sprintf("n%d", n))
-				outs := runShardsOf(t, sub, n, args)
-				merged := filepath.Join(sub, "merged")
-				// Our choice of seed: a fixed shuffle, the same on every run.
-				order := rand.New(rand.NewPCG(uint64(n), 1)).Perm(n)
-				mergeShuffled(t, outs, order, merged)
-				sameOutputs(t, single, merged, same, fmt.Sprintf("N=%d (merged in the order %v)", n, order))
-			}
+			sameAcrossSplits(t, dir, study, []int{1, 3}, e2eShardCounts, 1)
 			t.Logf("%s (%d x %d): %s", st.Spec.Name, st.Spec.Width, h, time.Since(start).Round(time.Millisecond))
 		})
 	}
@@ -90,4 +67,38 @@ func cutsInside(height int, counts []int, side int) bool {
 		}
 	}
 	return false
+}
+
+// sameAcrossSplits runs the study file study into dir/single, then with
+// each worker count of workers and split into each shard count of counts
+// (shards run with 1 or 2 workers, merged in an order shuffled from
+// shuffle), and reports each output that differs from the single run's.
+// It returns the single run's folder.
+func sameAcrossSplits(t *testing.T, dir, study string, workers, counts []int, shuffle uint64) string {
+	t.Helper()
+	args := func(out string, extra ...string) []string {
+		return append([]string{"run", "--study", study, "--quiet", "--out", out}, extra...)
+	}
+	single := filepath.Join(dir, "single")
+	if _, se, code := runBin(t, args(single)...); code != 0 {
+		t.Fatalf("single run: exit %d: %s", code, se)
+	}
+	same := comparedOutputs(t, single)
+	for _, w := range workers {
+		out := filepath.Join(dir, fmt.Sprintf("workers-%d", w))
+		if _, se, code := runBin(t, args(out, "--workers", fmt.Sprint(w))...); code != 0 {
+			t.Fatalf("--workers %d: exit %d: %s", w, code, se)
+		}
+		sameOutputs(t, single, out, same, fmt.Sprintf("--workers %d", w))
+	}
+	for _, n := range counts {
+		sub := filepath.Join(dir, fmt.Sprintf("n%d", n))
+		outs := runShardsOf(t, sub, n, args)
+		merged := filepath.Join(sub, "merged")
+		// Our choice of seed: a fixed shuffle, the same on every run.
+		order := rand.New(rand.NewPCG(uint64(n), shuffle)).Perm(n)
+		mergeShuffled(t, outs, order, merged)
+		sameOutputs(t, single, merged, same, fmt.Sprintf("N=%d (merged in the order %v)", n, order))
+	}
+	return single
 }

@@ -96,34 +96,13 @@ func TestTallShardsAcrossNullBlocks(t *testing.T) {
 			if !cutsInside(600, []int{3}, pass.VirtualBlock) {
 				t.Fatal("3 shards of 600 rows no longer cut inside a null block")
 			}
-			args := func(out string, extra ...string) []string {
-				return append([]string{"run", "--study", study, "--quiet", "--out", out}, extra...)
-			}
-			single := filepath.Join(dir, "single")
-			if _, se, code := runBin(t, args(single)...); code != 0 {
-				t.Fatalf("single run: exit %d: %s", code, se)
-			}
+			single := sameAcrossSplits(t, dir, study, []int{1}, []int{3, 5}, 3)
 			res := loadResults(t, single)
 			if len(res.Models) < 2 {
 				t.Fatalf("results.json lists %d models; want the model and the distance-only null", len(res.Models))
 			}
 			if res.PointCounts.Test < 30 || len(res.Extents) < 6 {
 				t.Fatalf("%d test points and %d extents scored; the study was meant to place 40 and build 7", res.PointCounts.Test, len(res.Extents))
-			}
-			same := comparedOutputs(t, single)
-			one := filepath.Join(dir, "workers-1")
-			if _, se, code := runBin(t, args(one, "--workers", "1")...); code != 0 {
-				t.Fatalf("--workers 1: exit %d: %s", code, se)
-			}
-			sameOutputs(t, single, one, same, "--workers 1")
-			for _, n := range []int{3, 5} {
-				sub := filepath.Join(dir, fmt.Sprintf("n%d", n))
-				outs := runShardsOf(t, sub, n, args)
-				merged := filepath.Join(sub, "merged")
-				// Our choice of seed: a fixed shuffle.
-				order := rand.New(rand.NewPCG(uint64(n), 3)).Perm(n)
-				mergeShuffled(t, outs, order, merged)
-				sameOutputs(t, single, merged, same, fmt.Sprintf("N=%d (merged in the order %v)", n, order))
 			}
 		})
 	}
