@@ -332,35 +332,21 @@ func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, 
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			pts := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
-			for k := range tileSide {
-				pts.lons[k], pts.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
-			}
+			pts := newBandPoints(box)
 			var in [tileSide]rowRuns
 			for r0 := range bands {
 				h := min(tileSide, g.Height-r0)
 				for k := range h {
-					pts.prepareRow(g, r0+k, k)
 					in[k] = nil
 				}
-				for c0 := 0; c0 < g.Width; c0 += tileSide {
-					c1 := min(c0+tileSide, g.Width)
-					switch hc.side(pts, 0, h, c0, c1) {
-					case 1:
-						for k := range h {
-							in[k] = appendRun(in[k], int32(c0), int32(c1))
-						}
-					case 0:
-						for k := range h {
-							pts.make(k, c0, c1)
-							lons, lats := pts.lons[k], pts.lats[k]
-							for c := c0; c < c1; c++ {
-								if !math.IsNaN(lats[c]) && box.has(lons[c], lats[c]) && s.contains(lons[c], lats[c]) {
-									in[k] = appendRun(in[k], int32(c), int32(c+1))
-								}
-							}
-						}
+				// A window of fieldWindow columns at a time: memory
+				// bounded whatever the grid's width.
+				for a := 0; a < g.Width; a += fieldWindow {
+					pts.window(g, a, min(a+fieldWindow, g.Width), min(fieldWindow, g.Width))
+					for k := range h {
+						pts.prepareRow(g, r0+k, k)
 					}
+					s.windowRuns(hc, pts, box, h, &in)
 				}
 				for k := range h {
 					done(r0+k, in[k])
@@ -373,6 +359,31 @@ func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, 
 	}
 	close(bands)
 	wg.Wait()
+}
+
+// windowRuns appends to in[k] the runs of the cells of band row k (of
+// h) inside the hull and the box, in the columns of pts' window, tile by
+// tile (see projectedRows).
+func (s *sphericalHull) windowRuns(hc hullCap, pts *bandPoints, box reachBox, h int, in *[tileSide]rowRuns) {
+	w := pts.g.Width
+	for c0 := pts.off; c0 < pts.end; c0 += tileSide {
+		c1 := min(c0+tileSide, w)
+		switch hc.side(pts, 0, h, c0, c1) {
+		case 1:
+			for k := range h {
+				in[k] = appendRun(in[k], int32(c0), int32(c1))
+			}
+		case 0:
+			for k := range h {
+				pts.make(k, c0, c1)
+				for c := c0; c < c1; c++ {
+					if lat, lon := pts.ll(k, c); !math.IsNaN(lat) && box.has(lon, lat) && s.contains(lon, lat) {
+						in[k] = appendRun(in[k], int32(c), int32(c+1))
+					}
+				}
+			}
+		}
+	}
 }
 
 // parallelRows calls the function made by newWorker for every row in

@@ -153,12 +153,10 @@ func TestHullProjectedRows(t *testing.T) {
 			}
 			// The tiles hullCap settles, inside and outside.
 			hc := h.newHullCap(box)
-			bp := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
-			for k := range tileSide {
-				bp.lons[k], bp.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
-			}
+			bp := newBandPoints(box)
 			for r0 := 0; r0 < g.Height; r0 += tileSide {
 				hb := min(tileSide, g.Height-r0)
+				bp.window(g, 0, g.Width, g.Width)
 				for k := range hb {
 					bp.prepareRow(g, r0+k, k)
 				}
