@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 	"sync"
 	"sync/atomic"
@@ -264,17 +265,19 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		h.projectedRows(g, box, done)
 		return nil
 	}
+	// A latitude-longitude grid's centres are its geotransform's (Grid.RowLonLat's
+	// coordinates), computed as needed: no row of the grid's width is held.
 	parallelRows(g.Height, func() func(row int) {
-		lonsR := make([]float64, g.Width)
-		latsR := make([]float64, g.Width)
 		return func(row int) {
-			g.RowLonLat(row, lonsR, latsR)
+			lon := func(c int) float64 { x, _ := g.Centre(c, row); return x }
+			_, lat := g.Centre(0, row)
 			inside := func(c int) bool {
-				return !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c])
+				l := lon(c)
+				return !math.IsNaN(lat) && box.has(l, lat) && h.contains(l, lat)
 			}
 			var in rowRuns
-			if lat, ok := alongParallel(lonsR, latsR); ok {
-				in = h.rowRuns(lat, lonsR, box, inside)
+			if alongParallel(g.Width, lon, lat) {
+				in = h.rowRuns(lat, g.Width, lon, box, inside)
 			} else {
 				for c := 0; c < g.Width; c++ {
 					if inside(c) {
@@ -409,20 +412,23 @@ func parallelRows(height int, newWorker func() func(row int)) {
 	wg.Wait()
 }
 
-// alongParallel reports whether a row's cell centres lie on one parallel
-// with longitudes strictly increasing (a latitude-longitude grid whose
-// coordinates reach WGS84 unchanged), and returns its latitude.
-func alongParallel(lons, lats []float64) (float64, bool) {
-	lat := lats[0]
+// alongParallel reports whether the w cell centres of a row at latitude
+// lat (on a latitude-longitude grid whose coordinates reach WGS84
+// unchanged, every centre of a row has its latitude) lie at strictly
+// increasing longitudes lon(c).
+func alongParallel(w int, lon func(c int) float64, lat float64) bool {
 	if math.IsNaN(lat) {
-		return 0, false
+		return false
 	}
-	for c := range lats {
-		if lats[c] != lat || c > 0 && !(lons[c] > lons[c-1]) {
-			return 0, false
+	prev := lon(0)
+	for c := 1; c < w; c++ {
+		l := lon(c)
+		if !(l > prev) {
+			return false
 		}
+		prev = l
 	}
-	return lat, true
+	return true
 }
 
 // hullMargin is how many cells on each side of a computed boundary
@@ -431,16 +437,16 @@ func alongParallel(lons, lats []float64) (float64, bool) {
 const hullMargin = 2
 
 // rowRuns returns the runs of a row's cells inside the hull and the box,
-// where the row's centres lie on the parallel lat at increasing longitudes
-// lons and inside(c) is the exact test of cell c. Membership can change
-// along the parallel only where it crosses one of the great circles that
-// bound the hull (its edges, and the edge of the projection's hemisphere)
-// or a meridian bounding the box. Cells within hullMargin of a crossing
-// are tested one by one; each longer stretch between them is tested at its
-// first cell, which decides the whole stretch. The result is the same as
-// testing every cell.
-func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, inside func(c int) bool) rowRuns {
-	w := len(lons)
+// where the row's w centres lie on the parallel lat at increasing
+// longitudes lon(c) and inside(c) is the exact test of cell c. Membership
+// can change along the parallel only where it crosses one of the great
+// circles that bound the hull (its edges, and the edge of the
+// projection's hemisphere) or a meridian bounding the box. Cells within
+// hullMargin of a crossing are tested one by one; each longer stretch
+// between them is tested at its first cell, which decides the whole
+// stretch. The result is the same as testing every cell. It holds the
+// crossings, never a row of the grid's width.
+func (s *sphericalHull) rowRuns(lat float64, w int, lon func(c int) float64, box reachBox, inside func(c int) bool) rowRuns {
 	var at []float64
 	// Great circle with normal n meets the parallel where
 	// n0 cos(phi) cos(lambda) + n1 cos(phi) sin(lambda) = -n2 sin(phi).
@@ -471,35 +477,39 @@ func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, insid
 	if box.lonH < 180 {
 		at = append(at, box.lonC-box.lonH, box.lonC+box.lonH)
 	}
-	// Mark the cells near each crossing, at every turn of 360 degrees
-	// from just below the row's first longitude to beyond its last.
-	exact := make([]bool, w)
+	// The cells near each crossing, at every turn of 360 degrees from
+	// just below the row's first longitude to beyond its last: spans of
+	// columns [a, b], in order of a.
+	first, last := lon(0), lon(w-1)
+	var near [][2]int
 	for _, l := range at {
-		l = lons[0] - 360 + math.Mod(math.Mod(l-lons[0], 360)+360, 360)
-		for ; l <= lons[w-1]+360; l += 360 {
-			i := sort.SearchFloat64s(lons, l)
-			for c := max(0, i-hullMargin-1); c <= min(w-1, i+hullMargin); c++ {
-				exact[c] = true
-			}
+		l = first - 360 + math.Mod(math.Mod(l-first, 360)+360, 360)
+		for ; l <= last+360; l += 360 {
+			i := sort.Search(w, func(c int) bool { return lon(c) >= l })
+			near = append(near, [2]int{max(0, i-hullMargin-1), min(w-1, i+hullMargin)})
 		}
 	}
+	slices.SortFunc(near, func(x, y [2]int) int { return x[0] - y[0] })
 	var out rowRuns
-	for c := 0; c < w; {
-		if exact[c] {
-			if inside(c) {
-				out = appendRun(out, int32(c), int32(c+1))
-			}
-			c++
+	c := 0 // the first cell not yet decided
+	for _, sp := range near {
+		if sp[1] < c {
 			continue
 		}
-		end := c
-		for end < w && !exact[end] {
-			end++
+		a := max(sp[0], c)
+		if c < a && inside(c) {
+			// The stretch before the span, decided by its first cell.
+			out = appendRun(out, int32(c), int32(a))
 		}
-		if inside(c) {
-			out = appendRun(out, int32(c), int32(end))
+		for x := a; x <= sp[1]; x++ {
+			if inside(x) {
+				out = appendRun(out, int32(x), int32(x+1))
+			}
 		}
-		c = end
+		c = sp[1] + 1
+	}
+	if c < w && inside(c) {
+		out = appendRun(out, int32(c), int32(w))
 	}
 	return out
 }
