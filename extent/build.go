@@ -17,6 +17,9 @@ type builder struct {
 	g     *Grid
 	valid *Valid
 	f     *Family
+	// windowCols, when positive, is the width of the distance fields' windows
+	// instead of fieldWindow (tests: many windows on a small grid).
+	windowCols int
 }
 
 // add appends a member with no cells and returns its index.

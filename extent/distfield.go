@@ -17,6 +17,20 @@ const tileSide = 16
 // cell when one query does not settle them.
 const walkSide = 8
 
+// fieldWindow is the number of columns of a band a distance-field worker
+// classifies at a time (a multiple of tileSide): its buffers hold one
+// window and the column on each side of it, tileSide rows deep, so that
+// its memory is bounded whatever the grid's width (about 1 MB a worker on
+// a latitude-longitude grid, 2 MB on a projected one, against 420 bytes
+// per column of the whole grid when a worker held whole bands: 170 MB a
+// worker on a grid 400,000 cells wide). Grids up to this width are
+// classified in one window a band, as before; on wider ones the windows
+// of a band are classified left to right by one worker, each starting
+// from the classes and rooms of the previous window's last column, so the
+// queries, and the classes, are those of a whole band (only memory and
+// the clearing of it change).
+const fieldWindow = 4096
+
 // distanceField calls rowDone(row, near) once for every row of the grid,
 // from several goroutines (never twice for a row): near[j] holds the runs
 // of the row's cells whose geodesic distance from the cell centre to the
@@ -25,9 +39,9 @@ const walkSide = 8
 // fits 16 bits); the slices in near are the callee's to keep.
 //
 // Only the class of each cell matters: which of the cut distances the
-// distance lies below. Each worker holds the distances of one band of
-// tileSide rows at a time (as classes, 2 bytes a cell), never the whole
-// grid. The distance
+// distance lies below. Each worker holds the distances of one window of a
+// band of tileSide rows at a time (fieldWindow columns, as classes, 2
+// bytes a cell), never the whole grid nor a whole row. The distance
 // function is 1-Lipschitz, which saves most queries:
 //
 //   - a tile of tileSide x tileSide cells gets one query at its centre cell,
@@ -51,8 +65,8 @@ const walkSide = 8
 //     the nearest cut) exceeds the step between them, and is queried
 //     otherwise, against the listed sites when they are few
 //     (Near.StraightBounds: the smallest straight distance). Rooms pass
-//     across tile edges: a tile settled whole gives its cells the room
-//     its centre's gap leaves beyond rho.
+//     across tile edges (and window edges): a tile settled whole gives its
+//     cells the room its centre's gap leaves beyond rho.
 //
 // The cost so stays near the buffers' edges instead of over their area,
 // and all cuts share one field: a cell is measured exactly only when its
@@ -67,75 +81,9 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			lons := make([][]float64, tileSide)
-			lats := make([][]float64, tileSide)
-			steps := newBandSteps()
-			for k := range lons {
-				lons[k] = make([]float64, g.Width)
-				lats[k] = make([]float64, g.Width)
-			}
-			fl := &field{cuts: cuts, maxD: maxD, w: g.Width, cls: make([]uint16, tileSide*g.Width), room: make([]float64, tileSide*g.Width)}
-			open := make([]int32, len(cuts))
-			rhos := &tileRadii{}
-			pts := &bandPoints{lons: lons, lats: lats, rows: make([]geodesy.Parallel, tileSide), hint: -1, reach: reach}
+			fw := b.newFieldWorker(ix, reach, maxD, cuts)
 			for r0 := range bands {
-				rhos.n = 0
-				clear(fl.room)
-				fl.band = r0
-				r1 := min(r0+tileSide, g.Height)
-				for r := r0; r < r1; r++ {
-					k := r - r0
-					pts.prepareRow(g, r, k)
-				}
-				steps.measure(g, pts, r1-r0)
-				var classify func(t0, t1, c0, c1 int, near *geodesy.Near)
-				classify = func(t0, t1, c0, c1 int, near *geodesy.Near) {
-					hi, rho := math.Inf(1), 0.0
-					if t1-t0 > 2 && c1-c0 > 2 {
-						var ok bool
-						ok, hi, rho = b.wholeTile(ix, fl, pts, near, t0, t1, c0, c1, rhos)
-						if ok {
-							return
-						}
-						if t1-t0 > walkSide && c1-c0 > walkSide {
-							if near == nil && !math.IsInf(hi, 1) {
-								// The sites that may be nearest to some
-								// cell of the tile serve its quarters.
-								near = &steps.none
-								if ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
-									near = &steps.outer
-								}
-							}
-							tm, cm := (t0+t1)/2, (c0+c1)/2
-							classify(t0, tm, c0, cm, near)
-							classify(t0, tm, cm, c1, near)
-							classify(tm, t1, c0, cm, near)
-							classify(tm, t1, cm, c1, near)
-							return
-						}
-					}
-					walkTile(ix, fl, pts, steps, near, t0, t1, c0, c1, hi, rho)
-				}
-				if !g.Geographic && r1-r0 > 2 {
-					// Every tile of the band is probed at its centre
-					// and corners (wholeTile): all in one call.
-					ks, cs := pts.probeKs[:0], pts.probeCs[:0]
-					for c0 := 0; c0+2 < g.Width; c0 += tileSide {
-						c1 := min(c0+tileSide, g.Width)
-						kc, k1 := (r0+r1)/2-r0, r1-1-r0
-						ks = append(ks, kc, 0, 0, k1, k1)
-						cs = append(cs, (c0+c1)/2, c0, c1-1, c0, c1-1)
-					}
-					pts.makeCells(ks, cs)
-					pts.probeKs, pts.probeCs = ks, cs
-				}
-				for c0 := 0; c0 < g.Width; c0 += tileSide {
-					classify(r0, r1, c0, min(c0+tileSide, g.Width), nil)
-				}
-				for r := r0; r < r1; r++ {
-					k := r - r0
-					rowDone(r, cutRuns(fl.cls[k*g.Width:(k+1)*g.Width], len(cuts), open))
-				}
+				fw.band(r0, rowDone)
 			}
 		}()
 	}
@@ -146,45 +94,201 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 	wg.Wait()
 }
 
-// cutRuns returns, for each of the m cuts (ascending), the runs of the
-// cells of a row whose distance is at most that cut, from each cell's
-// class (the first cut at or above its distance; m beyond every cut). Cut
-// runs nest, so one scan tracking the class opens and closes them; open
-// is scratch of len m.
-func cutRuns(classes []uint16, m int, open []int32) []rowRuns {
-	near := make([]rowRuns, m)
-	prev := m
-	for c, k := range classes {
+// fieldWorker is one distanceField worker and its buffers, reused from
+// band to band and window to window.
+type fieldWorker struct {
+	b     *builder
+	ix    *geodesy.Index
+	cols  int // the window's width: fieldWindow, or b.windowCols when set
+	fl    *field
+	pts   *bandPoints
+	steps *bandSteps
+	rhos  *tileRadii
+	runs  [tileSide]rowCuts
+	// The previous window's last column, carried into the next.
+	carryCls  [tileSide]uint16
+	carryRoom [tileSide]float64
+}
+
+func (b *builder) newFieldWorker(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64) *fieldWorker {
+	cols := fieldWindow
+	if b.windowCols > 0 {
+		cols = b.windowCols
+	}
+	return &fieldWorker{
+		b: b, ix: ix, cols: cols,
+		fl:    &field{cuts: cuts, maxD: maxD, w: b.g.Width},
+		pts:   newBandPoints(reach),
+		steps: newBandSteps(),
+		rhos:  &tileRadii{},
+	}
+}
+
+// band classifies the rows [r0, r0+tileSide) of the grid, window by
+// window from west to east, and hands each row's runs to rowDone.
+func (fw *fieldWorker) band(r0 int, rowDone func(row int, near []rowRuns)) {
+	g, fl := fw.b.g, fw.fl
+	fw.rhos.n = 0
+	fl.band = r0
+	r1 := min(r0+tileSide, g.Height)
+	fw.steps.measure(g, r0, r1-r0)
+	for k := range r1 - r0 {
+		fw.runs[k].start(len(fl.cuts))
+	}
+	for a := 0; a < g.Width; a += fw.cols {
+		e := min(a+fw.cols, g.Width)
+		fw.window(r0, r1, a, e)
+		for k := range r1 - r0 {
+			fw.runs[k].add(fl.row(k, a, e), a)
+		}
+	}
+	for k := range r1 - r0 {
+		rowDone(r0+k, fw.runs[k].finish(g.Width))
+	}
+}
+
+// window classifies the cells of band rows [r0, r1), columns [a, e): the
+// field and the points then hold columns [a-1, e+1) (within the grid),
+// the column west of the window with the classes and rooms the previous
+// window left there (walkTile passes rooms from it), the one east of it
+// unclassified (room 0), as in a whole band.
+func (fw *fieldWorker) window(r0, r1, a, e int) {
+	g, fl, pts := fw.b.g, fw.fl, fw.pts
+	n := r1 - r0
+	if a > 0 {
+		for k := range n {
+			fw.carryCls[k], fw.carryRoom[k] = fl.cell(k, a-1)
+		}
+	}
+	// Every window of the grid fits the buffers of the first.
+	lo, hi, most := max(a-1, 0), min(e+1, g.Width), min(fw.cols+2, g.Width)
+	fl.window(lo, hi, most)
+	if a > 0 {
+		for k := range n {
+			fl.set(k, a-1, fw.carryCls[k], fw.carryRoom[k])
+		}
+	}
+	pts.window(g, lo, hi, most)
+	for k := range n {
+		pts.prepareRow(g, r0+k, k)
+	}
+	if !g.Geographic && n > 2 {
+		// Every tile of the window is probed at its centre and corners
+		// (wholeTile): all in one call.
+		ks, cs := pts.probeKs[:0], pts.probeCs[:0]
+		for c0 := a; c0 < e && c0+2 < g.Width; c0 += tileSide {
+			c1 := min(c0+tileSide, g.Width)
+			kc, k1 := (r0+r1)/2-r0, r1-1-r0
+			ks = append(ks, kc, 0, 0, k1, k1)
+			cs = append(cs, (c0+c1)/2, c0, c1-1, c0, c1-1)
+		}
+		pts.makeCells(ks, cs)
+		pts.probeKs, pts.probeCs = ks, cs
+	}
+	for c0 := a; c0 < e; c0 += tileSide {
+		fw.classify(r0, r1, c0, min(c0+tileSide, g.Width), nil)
+	}
+}
+
+// classify classifies the tile of rows [t0, t1), columns [c0, c1): whole
+// when one query settles it, else in quarters down to walkSide, else
+// cell by cell (see distanceField).
+func (fw *fieldWorker) classify(t0, t1, c0, c1 int, near *geodesy.Near) {
+	ix, fl, steps := fw.ix, fw.fl, fw.steps
+	hi, rho := math.Inf(1), 0.0
+	if t1-t0 > 2 && c1-c0 > 2 {
+		var ok bool
+		ok, hi, rho = fw.b.wholeTile(ix, fl, fw.pts, near, t0, t1, c0, c1, fw.rhos)
+		if ok {
+			return
+		}
+		if t1-t0 > walkSide && c1-c0 > walkSide {
+			if near == nil && !math.IsInf(hi, 1) {
+				// The sites that may be nearest to some cell of the
+				// tile serve its quarters.
+				near = &steps.none
+				if ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
+					near = &steps.outer
+				}
+			}
+			tm, cm := (t0+t1)/2, (c0+c1)/2
+			fw.classify(t0, tm, c0, cm, near)
+			fw.classify(t0, tm, cm, c1, near)
+			fw.classify(tm, t1, c0, cm, near)
+			fw.classify(tm, t1, cm, c1, near)
+			return
+		}
+	}
+	walkTile(ix, fl, fw.pts, steps, near, t0, t1, c0, c1, hi, rho)
+}
+
+// rowCuts gathers the runs of one row for each of m cuts (ascending) from
+// each cell's class (the first cut at or above its distance; m beyond
+// every cut), window by window from west to east. Cut runs nest, so one
+// scan tracking the class opens and closes them.
+type rowCuts struct {
+	near []rowRuns
+	open []int32 // where each open run began
+	prev int     // the class of the last cell added
+}
+
+// start begins a row.
+func (r *rowCuts) start(m int) {
+	r.near = make([]rowRuns, m)
+	if cap(r.open) < m {
+		r.open = make([]int32, m)
+	}
+	r.open = r.open[:m]
+	r.prev = m
+}
+
+// add takes the classes of the row's next cells, from column c0 on.
+func (r *rowCuts) add(classes []uint16, c0 int) {
+	prev := r.prev
+	for i, k := range classes {
 		cls := int(k)
 		if cls == prev {
 			continue
 		}
+		c := int32(c0 + i)
 		if cls < prev {
 			for j := cls; j < prev; j++ {
-				open[j] = int32(c)
+				r.open[j] = c
 			}
 		} else {
 			for j := prev; j < cls; j++ {
-				near[j] = append(near[j], open[j], int32(c))
+				r.near[j] = append(r.near[j], r.open[j], c)
 			}
 		}
 		prev = cls
 	}
-	for j := prev; j < m; j++ {
-		near[j] = append(near[j], open[j], int32(len(classes)))
+	r.prev = prev
+}
+
+// finish closes the runs still open at the row's end, width, and returns
+// the row's runs for each cut.
+func (r *rowCuts) finish(width int) []rowRuns {
+	for j := r.prev; j < len(r.near); j++ {
+		r.near[j] = append(r.near[j], r.open[j], int32(width))
 	}
+	near := r.near
+	r.near = nil
 	return near
 }
 
-// field is one worker's band of a distance field: the class of each cell
-// of the band's rows (see cutRuns), with the cuts.
+// field is one worker's window of a band of a distance field: the class
+// of each cell of the band's rows in the window's columns (see rowCuts),
+// with the cuts.
 type field struct {
 	cuts []float64
 	maxD float64
-	w    int      // grid width
-	band int      // the band's first grid row
-	cls  []uint16 // band row k, column c at k*w + c
-	// room of each classified cell of the band (same layout): d(x) lies
+	w    int // grid width
+	band int // the band's first grid row
+	// The columns held, [off, off+stride): band row k, column c at
+	// k*stride + c - off.
+	off, stride int
+	cls         []uint16
+	// room of each classified cell of the window (same layout): d(x) lies
 	// in an interval I with every value within room of I in the cell's
 	// class; 0 where unknown (cells not yet classified, cells classified
 	// by exact distances on a cut, cells beyond every cut without a
@@ -192,6 +296,33 @@ type field struct {
 	room []float64
 	// centre is the point of the last tile centre wholeTile bounded.
 	centre geodesy.Point
+}
+
+// window makes the field hold columns [lo, hi) of the band's rows, every
+// cell unclassified (room 0); buffers it allocates hold most columns.
+func (f *field) window(lo, hi, most int) {
+	f.off, f.stride = lo, hi-lo
+	n := tileSide * f.stride
+	f.cls, f.room = resize(f.cls, n, tileSide*most), resize(f.room, n, tileSide*most)
+	clear(f.room)
+}
+
+// row returns the classes of band row k, columns [c0, c1).
+func (f *field) row(k, c0, c1 int) []uint16 {
+	i := k*f.stride - f.off
+	return f.cls[i+c0 : i+c1]
+}
+
+// cell returns the class and room of band row k, column c.
+func (f *field) cell(k, c int) (uint16, float64) {
+	i := k*f.stride + c - f.off
+	return f.cls[i], f.room[i]
+}
+
+// set gives band row k, column c class cls and room room.
+func (f *field) set(k, c int, cls uint16, room float64) {
+	i := k*f.stride + c - f.off
+	f.cls[i], f.room[i] = cls, room
 }
 
 // gap is classGap for the field's cuts.
@@ -204,9 +335,9 @@ func (f *field) gap(lo, hi float64) (room float64, cls int) {
 func (f *field) fill(r0, r1, c0, c1 int, cls int, room float64) {
 	k := uint16(cls)
 	for r := r0; r < r1; r++ {
-		row := f.cls[(r-f.band)*f.w:]
-		rm := f.room[(r-f.band)*f.w:]
-		for c := c0; c < c1; c++ {
+		i := (r-f.band)*f.stride - f.off
+		row, rm := f.cls[i+c0:i+c1], f.room[i+c0:i+c1]
+		for c := range row {
 			row[c] = k
 			rm[c] = room
 		}
@@ -379,6 +510,8 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // outside the reach box (pts.in) are farther than maxD.
 func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
 	band, maxD, m, w := fl.band, fl.maxD, len(fl.cuts), fl.w
+	// The field holds columns [o, o+s): column c of a row is at c - o.
+	o, s := fl.off, fl.stride
 	// An empty list (steps.none: the enclosing tile's was too long) is
 	// tried again for this smaller tile, with the longer limit.
 	listed := near != nil && near.Len() > 0
@@ -401,38 +534,39 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 		var prevRoom []float64
 		if up {
 			vs, ds = st.v[k-1], st.diag[k-1]
-			prevCls, prevRoom = fl.cls[(k-1)*w:k*w], fl.room[(k-1)*w:k*w]
+			prevCls, prevRoom = fl.cls[(k-1)*s:k*s], fl.room[(k-1)*s:k*s]
 		}
-		row, rooms := fl.cls[k*w:(k+1)*w], fl.room[k*w:(k+1)*w]
+		row, rooms := fl.cls[k*s:(k+1)*s], fl.room[k*s:(k+1)*s]
 		for c := c0; c < c1; c++ {
-			rooms[c] = 0
+			x := c - o
+			rooms[x] = 0
 			if !pts.in(k, c) {
-				row[c] = uint16(m)
+				row[x] = uint16(m)
 				continue
 			}
 			// The largest room a neighbour passes on.
 			room, d := 0.0, uint16(0)
-			if c > 0 && rooms[c-1] > 0 {
+			if c > 0 && rooms[x-1] > 0 {
 				step := hs
 				if step < 0 {
 					step = pts.stepUpper(k, c)
 				}
-				if g := rooms[c-1] - step; g > room {
-					room, d = g, row[c-1]
+				if g := rooms[x-1] - step; g > room {
+					room, d = g, row[x-1]
 				}
 			}
 			if up {
-				if g := prevRoom[c] - vs; g > room {
-					room, d = g, prevCls[c]
+				if g := prevRoom[x] - vs; g > room {
+					room, d = g, prevCls[x]
 				}
 				if c > 0 {
-					if g := prevRoom[c-1] - ds; g > room {
-						room, d = g, prevCls[c-1]
+					if g := prevRoom[x-1] - ds; g > room {
+						room, d = g, prevCls[x-1]
 					}
 				}
 				if c+1 < w {
-					if g := prevRoom[c+1] - ds; g > room {
-						room, d = g, prevCls[c+1]
+					if g := prevRoom[x+1] - ds; g > room {
+						room, d = g, prevCls[x+1]
 					}
 				}
 			}
@@ -452,31 +586,31 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 					lo, hi = pts.bounds(ix, &pt, maxD)
 				}
 				if math.IsInf(hi, 1) {
-					row[c] = uint16(m)
+					row[x] = uint16(m)
 					continue
 				}
 				var k int
 				room, k = fl.gap(lo, hi)
 				if !(room > 0) {
-					_, s := ix.NearestAt(&pt, maxD)
-					if math.IsInf(s, 1) {
-						row[c] = uint16(m)
+					_, dist := ix.NearestAt(&pt, maxD)
+					if math.IsInf(dist, 1) {
+						row[x] = uint16(m)
 						continue
 					}
-					room, k = fl.gap(s, s)
+					room, k = fl.gap(dist, dist)
 				}
 				d = uint16(k)
 				// The query's room reaches back too: the cells of the row
 				// to its left (same class, classified before) get the
 				// larger room, which the next row takes from above.
 				if hs >= 0 {
-					for j, g := c-1, room-hs; j >= c0 && g > rooms[j] && row[j] == d; j, g = j-1, g-hs {
+					for j, g := x-1, room-hs; j >= c0-o && g > rooms[j] && row[j] == d; j, g = j-1, g-hs {
 						rooms[j] = g
 					}
 				}
 			}
-			row[c] = d
-			rooms[c] = room
+			row[x] = d
+			rooms[x] = room
 		}
 	}
 }
@@ -562,26 +696,29 @@ func newBandSteps() *bandSteps {
 	return st
 }
 
-// measure fills the steps of the band's rows [0, n).
-func (st *bandSteps) measure(g *Grid, pts *bandPoints, n int) {
+// measure fills the steps of the band's rows [r0, r0+n): those between
+// the cells of columns 0 and 1, the same all along each row.
+func (st *bandSteps) measure(g *Grid, r0, n int) {
 	for k := 0; k < tileSide; k++ {
 		st.h[k], st.v[k], st.diag[k] = -1, -1, -1
 	}
 	if !g.Geographic || g.Width < 2 {
 		return
 	}
+	// Each step is rounded up far beyond PROJ's error, so that a room is
+	// never overstated.
+	up := func(s float64) float64 { return s*(1+1e-9) + 1e-6 }
 	for k := 0; k < n; k++ {
-		lats, lons := pts.lats[k], pts.lons[k]
-		// Each step is rounded up far beyond PROJ's error, so that a
-		// room is never overstated.
-		up := func(s float64) float64 { return s*(1+1e-9) + 1e-6 }
-		st.h[k] = up(geodesy.Distance(lats[0], lons[0], lats[1], lons[1]))
+		// The coordinates bandPoints gives these cells (ll).
+		lon0, lat := g.Centre(0, r0+k)
+		lon1, _ := g.Centre(1, r0+k)
+		st.h[k] = up(geodesy.Distance(lat, lon0, lat, lon1))
 		if k+1 < n {
-			nl := pts.lats[k+1]
-			st.v[k] = up(geodesy.Distance(lats[0], lons[0], nl[0], lons[0]))
+			_, next := g.Centre(0, r0+k+1)
+			st.v[k] = up(geodesy.Distance(lat, lon0, next, lon0))
 			// Both diagonals have this length: the grid is symmetric
 			// about every meridian through a cell centre.
-			st.diag[k] = up(geodesy.Distance(lats[0], lons[0], nl[1], lons[1]))
+			st.diag[k] = up(geodesy.Distance(lat, lon0, next, lon1))
 		}
 	}
 }
@@ -645,27 +782,32 @@ func (r reachBox) has(lon, lat float64) bool {
 	return d <= r.lonH
 }
 
-// bandPoints prepares the cells of a band of rows for index queries: on a
+// bandPoints prepares the cells of a window of a band of rows (columns
+// [off, end) of tileSide rows, set by window) for index queries: on a
 // latitude-longitude grid every row is one parallel and every column one
 // meridian, so a cell's point costs a few multiplications from its row's
 // geodesy.Parallel and its column's sine and cosine (computed once per
-// worker); elsewhere each queried cell is prepared on its own, and its
+// window); elsewhere each queried cell is prepared on its own, and its
 // coordinates are transformed to WGS84 only when the field first reads
 // them (ll, make): a tile settled whole reads its centre and corner cells
 // alone, so most cells are never transformed (one PROJ transform, about
 // 0.3 µs, was most of the field's cost on a projected grid). A cell's
 // coordinates are the same numbers whether it is transformed alone or
-// with its row (Grid.ToLonLat converts each point on its own). It also
-// keeps the last chord-nearest site as the hint of the next bounds query:
-// cells queried one after another are neighbours, with the same nearest
-// site or one close to it.
+// with its row (Grid.ToLonLat converts each point on its own), and
+// whatever the window. It also keeps the last chord-nearest site as the
+// hint of the next bounds query: cells queried one after another are
+// neighbours, with the same nearest site or one close to it. Columns are
+// the grid's throughout; the slices hold column c at c - off.
 type bandPoints struct {
-	lons, lats     [][]float64 // the band's rows
+	off, end       int         // the columns held
+	lons, lats     [][]float64 // the band's rows (projected grids)
 	rows           []geodesy.Parallel
-	perRow         bool      // rows are parallels and columns meridians
+	perRow         bool // rows are parallels and columns meridians
+	rowLat         [tileSide]float64
 	colLon         []float64 // each column's longitude (perRow)
 	colSin, colCos []float64 // sine and cosine of each column's longitude
 	colIn          []bool    // whether the column's longitude is in the reach box
+	colOff         int       // the first column of colLon; -1 before the first window
 	rowIn          [tileSide]bool
 	reach          reachBox
 	hint           int
@@ -688,6 +830,59 @@ type bandPoints struct {
 	rectKs, rectCs   []int
 }
 
+// newBandPoints returns points with no window yet; reach is the box
+// outside which cells are certainly beyond the field's distances (in).
+func newBandPoints(reach reachBox) *bandPoints {
+	return &bandPoints{
+		lons: make([][]float64, tileSide), lats: make([][]float64, tileSide),
+		have: make([][]bool, tileSide), rows: make([]geodesy.Parallel, tileSide),
+		colOff: -1, hint: -1, reach: reach,
+	}
+}
+
+// window makes columns [lo, hi) of the grid the ones the band's rows
+// hold; prepareRow then prepares each row. On a latitude-longitude grid
+// the columns' longitudes are computed when the window moves. Buffers it
+// allocates hold most columns.
+func (p *bandPoints) window(g *Grid, lo, hi, most int) {
+	p.off, p.end = lo, hi
+	n := hi - lo
+	p.perRow = g.Geographic
+	p.stepOK = false
+	if p.perRow {
+		if p.colOff == lo && len(p.colLon) == n {
+			return
+		}
+		p.colOff = lo
+		p.colLon, p.colSin, p.colCos = resize(p.colLon, n, most), resize(p.colSin, n, most), resize(p.colCos, n, most)
+		p.colIn = resize(p.colIn, n, most)
+		for i := range n {
+			// Grid.RowLonLat's longitude of the column: its centre's.
+			lon, _ := g.Centre(lo+i, 0)
+			p.colLon[i] = lon
+			p.colSin[i], p.colCos[i] = math.Sincos(lon * math.Pi / 180)
+			// has is separable on such grids: the latitude test in
+			// prepareRow, the longitude test here.
+			p.colIn[i] = p.reach.has(lon, p.reach.south)
+		}
+		return
+	}
+	p.g = g
+	for k := range tileSide {
+		p.lons[k], p.lats[k], p.have[k] = resize(p.lons[k], n, most), resize(p.lats[k], n, most), resize(p.have[k], n, most)
+	}
+}
+
+// resize returns s with length n, reallocated (with capacity for most
+// elements, or n when more) only when its capacity is short; its contents
+// are then not kept.
+func resize[T any](s []T, n, most int) []T {
+	if cap(s) < n {
+		return make([]T, n, max(n, most))
+	}
+	return s[:n]
+}
+
 // stepUpper returns an upper bound on the geodesic distance between the
 // centres of cells (band row k, column c-1) and (k, c) of a projected
 // grid, both with coordinates (see in): geodesy.ChordUpper of their ECEF
@@ -698,30 +893,22 @@ type bandPoints struct {
 // the steps of a row from left to right, so the left cell's position is
 // usually the one the previous call made.
 func (p *bandPoints) stepUpper(k, c int) float64 {
+	i := c - p.off
 	if !p.stepOK || p.stepK != k || p.stepC != c-1 {
-		p.stepP = geodesy.ECEF(p.lats[k][c-1], p.lons[k][c-1])
+		p.stepP = geodesy.ECEF(p.lats[k][i-1], p.lons[k][i-1])
 	}
-	cur := geodesy.ECEF(p.lats[k][c], p.lons[k][c])
+	cur := geodesy.ECEF(p.lats[k][i], p.lons[k][i])
 	s := geodesy.ChordUpper(&p.stepP, &cur)
 	p.stepOK, p.stepK, p.stepC, p.stepP = true, k, c, cur
 	return s
 }
 
-// prepareRow fills band row k with the coordinates of grid row r and
-// prepares it. On a latitude-longitude grid the row's longitudes are the
-// worker's one copy of the columns' (shared by every row, never written)
-// and its latitude is one number.
+// prepareRow makes band row k the window's cells of grid row r. On a
+// latitude-longitude grid the row's longitudes are the window's columns'
+// (shared by every row) and its latitude is one number; on a projected
+// one its cells are made on demand.
 func (p *bandPoints) prepareRow(g *Grid, r, k int) {
-	p.perRow = g.Geographic
 	if !p.perRow {
-		// Made on demand (see bandPoints).
-		if p.have == nil {
-			p.g = g
-			p.have = make([][]bool, tileSide)
-			for i := range p.have {
-				p.have[i] = make([]bool, g.Width)
-			}
-		}
 		p.rowOf[k] = r
 		clear(p.have[k])
 		if p.stepK == k {
@@ -729,25 +916,8 @@ func (p *bandPoints) prepareRow(g *Grid, r, k int) {
 		}
 		return
 	}
-	if p.colLon == nil {
-		p.colLon = make([]float64, g.Width)
-		g.RowLonLat(r, p.colLon, p.lats[k])
-		p.colSin = make([]float64, g.Width)
-		p.colCos = make([]float64, g.Width)
-		p.colIn = make([]bool, g.Width)
-		for c, lon := range p.colLon {
-			p.colSin[c], p.colCos[c] = math.Sincos(lon * math.Pi / 180)
-			// has is separable on such grids: the latitude test
-			// below, the longitude test here.
-			p.colIn[c] = p.reach.has(lon, p.reach.south)
-		}
-	}
-	p.lons[k] = p.colLon
 	_, lat := g.Centre(0, r)
-	lats := p.lats[k]
-	for c := range lats {
-		lats[c] = lat
-	}
+	p.rowLat[k] = lat
 	p.rows[k] = geodesy.NewParallel(lat)
 	p.rowIn[k] = lat >= p.reach.south && lat <= p.reach.north
 }
@@ -756,18 +926,18 @@ func (p *bandPoints) prepareRow(g *Grid, r, k int) {
 // no coordinates yet (projected grids), each run of them in one call.
 func (p *bandPoints) make(k, c0, c1 int) {
 	have, lons, lats, r := p.have[k], p.lons[k], p.lats[k], p.rowOf[k]
-	for c := c0; c < c1; {
-		if have[c] {
-			c++
+	for i, e := c0-p.off, c1-p.off; i < e; {
+		if have[i] {
+			i++
 			continue
 		}
-		a := c
-		for c < c1 && !have[c] {
-			lons[c], lats[c] = p.g.Centre(c, r)
-			have[c] = true
-			c++
+		a := i
+		for i < e && !have[i] {
+			lons[i], lats[i] = p.g.Centre(p.off+i, r)
+			have[i] = true
+			i++
 		}
-		p.g.ToLonLat(lons[a:c], lats[a:c], lons[a:c], lats[a:c])
+		p.g.ToLonLat(lons[a:i], lats[a:i], lons[a:i], lats[a:i])
 	}
 }
 
@@ -784,17 +954,17 @@ func (p *bandPoints) makeCells(ks, cs []int) {
 	xs, ys, gk, gc := p.gx[:0], p.gy[:0], p.gk[:0], p.gc[:0]
 	for i, k := range ks {
 		c := cs[i]
-		if p.have[k][c] {
+		if p.have[k][c-p.off] {
 			continue
 		}
-		p.have[k][c] = true // made below; a cell listed twice is made once
+		p.have[k][c-p.off] = true // made below; a cell listed twice is made once
 		x, y := p.g.Centre(c, p.rowOf[k])
 		xs, ys, gk, gc = append(xs, x), append(ys, y), append(gk, k), append(gc, c)
 	}
 	if len(xs) > 0 {
 		p.g.ToLonLat(xs, ys, xs, ys)
 		for j, k := range gk {
-			p.lons[k][gc[j]], p.lats[k][gc[j]] = xs[j], ys[j]
+			p.lons[k][gc[j]-p.off], p.lats[k][gc[j]-p.off] = xs[j], ys[j]
 		}
 	}
 	p.gx, p.gy, p.gk, p.gc = xs, ys, gk, gc
@@ -807,7 +977,7 @@ func (p *bandPoints) makeRect(k0, k1, c0, c1 int) {
 	ks, cs := p.rectKs[:0], p.rectCs[:0]
 	for k := k0; k < k1; k++ {
 		for c := c0; c < c1; c++ {
-			if !p.have[k][c] {
+			if !p.have[k][c-p.off] {
 				ks, cs = append(ks, k), append(cs, c)
 			}
 		}
@@ -819,17 +989,21 @@ func (p *bandPoints) makeRect(k0, k1, c0, c1 int) {
 // ll returns the latitude and longitude of cell (band row k, column c),
 // made first when they are not yet (projected grids).
 func (p *bandPoints) ll(k, c int) (lat, lon float64) {
-	if !p.perRow && !p.have[k][c] {
+	i := c - p.off
+	if p.perRow {
+		return p.rowLat[k], p.colLon[i]
+	}
+	if !p.have[k][i] {
 		p.make(k, c, c+1)
 	}
-	return p.lats[k][c], p.lons[k][c]
+	return p.lats[k][i], p.lons[k][i]
 }
 
 // in reports whether cell (band row k, column c) has coordinates and lies
 // in the reach box.
 func (p *bandPoints) in(k, c int) bool {
 	if p.perRow {
-		return p.rowIn[k] && p.colIn[c]
+		return p.rowIn[k] && p.colIn[c-p.off]
 	}
 	lat, lon := p.ll(k, c)
 	return !math.IsNaN(lat) && p.reach.has(lon, lat)
@@ -838,7 +1012,8 @@ func (p *bandPoints) in(k, c int) bool {
 // at returns the point of cell (band row k, column c).
 func (p *bandPoints) at(k, c int) geodesy.Point {
 	if p.perRow {
-		return p.rows[k].Point(p.lons[k][c], p.colSin[c], p.colCos[c])
+		i := c - p.off
+		return p.rows[k].Point(p.colLon[i], p.colSin[i], p.colCos[i])
 	}
 	return geodesy.NewPoint(p.ll(k, c))
 }

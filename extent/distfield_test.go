@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"sort"
 	"sync"
 	"testing"
@@ -122,14 +123,15 @@ func checkDistanceField(t *testing.T, g *Grid, lats, lons, cuts []float64) {
 		t.Fatal(err)
 	}
 	maxD := cuts[len(cuts)-1]
-	got := make([][]rowRuns, g.Height)
-	var mu sync.Mutex
-	b := &builder{g: g}
-	b.distanceField(ix, newReach(lats, lons, maxD), maxD, cuts, func(row int, near []rowRuns) {
-		mu.Lock()
-		got[row] = near
-		mu.Unlock()
-	})
+	got := fieldRuns(g, 0, ix, newReach(lats, lons, maxD), maxD, cuts)
+	// Windows narrower than the grid (down to one tile) give the runs of
+	// one window a band: the classes and rooms carried from window to
+	// window are those of the whole band.
+	for _, cols := range []int{tileSide, 3 * tileSide, 4 * tileSide} {
+		if w := fieldRuns(g, cols, ix, newReach(lats, lons, maxD), maxD, cuts); fmt.Sprint(w) != fmt.Sprint(got) {
+			t.Fatalf("windows of %d columns: runs differ from one window a band", cols)
+		}
+	}
 	lo, la := make([]float64, g.Width), make([]float64, g.Width)
 	near, exact := 0, 0
 	for row := 0; row < g.Height; row++ {
@@ -162,5 +164,114 @@ func checkDistanceField(t *testing.T, g *Grid, lats, lons, cuts []float64) {
 	}
 	if near < 100 {
 		t.Errorf("only %d cells within 1 km of a cut: the test does not probe the edges", near)
+	}
+}
+
+// fieldRuns returns the runs distanceField gives each row, with windows
+// of cols columns (0: fieldWindow).
+func fieldRuns(g *Grid, cols int, ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64) [][]rowRuns {
+	got := make([][]rowRuns, g.Height)
+	var mu sync.Mutex
+	b := &builder{g: g, windowCols: cols}
+	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
+		mu.Lock()
+		got[row] = near
+		mu.Unlock()
+	})
+	return got
+}
+
+// TestDistanceFieldMemoryWidth: the memory a distance field allocates
+// does not grow with the grid's width. One band (16 rows) of a
+// latitude-longitude grid 8,192 and 262,144 cells wide, with the sites
+// and their buffers in the west, so the runs (the output) are the same
+// on both: the wide field's allocations must stay under twice the narrow
+// one's (our cut-off; they were 32 times as large, and 170 MB a worker,
+// when each worker held whole rows). The runs of both must also agree
+// with the exact distances where they overlap (checked on the narrow
+// grid's columns, which hold every run).
+func TestDistanceFieldMemoryWidth(t *testing.T) {
+	lats := []float64{44.995, 44.996, 44.994}
+	lons := []float64{1.5, 2.2, 3.1}
+	cuts := []float64{5e3, 20e3, 40e3}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	maxD := cuts[len(cuts)-1]
+	alloc := func(w int) (uint64, [][]rowRuns) {
+		g, err := NewGrid(w, tileSide, [6]float64{0, 0.001, 0, 45.003, 0, -0.001}, "EPSG:4326")
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer g.Close()
+		runtime.GC()
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		got := fieldRuns(g, 0, ix, newReach(lats, lons, maxD), maxD, cuts)
+		runtime.ReadMemStats(&after)
+		return after.TotalAlloc - before.TotalAlloc, got
+	}
+	narrowB, narrow := alloc(8192)
+	wideB, wide := alloc(262144)
+	t.Logf("allocated %d bytes 8,192 cells wide, %d bytes 262,144 wide", narrowB, wideB)
+	if fmt.Sprint(narrow) != fmt.Sprint(wide) {
+		t.Fatalf("runs differ: %v narrow, %v wide", narrow, wide)
+	}
+	if wideB > 2*narrowB {
+		t.Errorf("the field allocated %d bytes on a grid 262,144 cells wide, %d on one 8,192 wide: memory grows with the width", wideB, narrowB)
+	}
+	// The runs against the exact distances (the 8,192 columns reach
+	// 8.2 degrees east, beyond 3.1 degrees + 40 km).
+	g, err := NewGrid(8192, tileSide, [6]float64{0, 0.001, 0, 45.003, 0, -0.001}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	lo, la := make([]float64, g.Width), make([]float64, g.Width)
+	for row := range g.Height {
+		g.RowLonLat(row, lo, la)
+		for j, cut := range cuts {
+			var want rowRuns
+			for c := range g.Width {
+				if _, d := ix.Nearest(la[c], lo[c], 0); d <= cut {
+					want = append(want, int32(c), int32(c+1))
+				}
+			}
+			if want = canonical(want); fmt.Sprint(narrow[row][j]) != fmt.Sprint(want) || len(want) == 0 {
+				t.Fatalf("row %d, cut %g m: runs %v, exact distances give %v", row, cut, narrow[row][j], want)
+			}
+		}
+	}
+}
+
+// BenchmarkDistanceFieldWide measures a distance field of three cuts
+// around 300 sites on a latitude-longitude grid 400,000 cells wide and 64
+// high (cells of 0.00025 degrees, 100 degrees of longitude): the shape on
+// which each worker held whole rows (about 170 MB a worker) before the
+// field worked in windows of fieldWindow columns. Bytes allocated per
+// build are reported (-benchmem).
+func BenchmarkDistanceFieldWide(b *testing.B) {
+	rng := rand.New(rand.NewPCG(5, 8))
+	var lats, lons []float64
+	for range 300 {
+		lats = append(lats, 5.002+0.012*rng.Float64())
+		lons = append(lons, 15+90*rng.Float64())
+	}
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	g, err := NewGrid(400000, 64, [6]float64{10, 0.00025, 0, 5.016, 0, -0.00025}, "EPSG:4326")
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer g.Close()
+	cuts := []float64{1e3, 5e3, 50e3}
+	reach := newReach(lats, lons, cuts[2])
+	bl := &builder{g: g}
+	b.ReportAllocs()
+	for b.Loop() {
+		bl.distanceField(ix, reach, cuts[2], cuts, func(int, []rowRuns) {})
 	}
 }

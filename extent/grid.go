@@ -619,8 +619,9 @@ func (g *Grid) CellSizeKm() float64 {
 }
 
 // MinCellSideM returns, in metres, the shortest cell side on the grid: for
-// latitude-longitude grids the east-west side of the row nearest a pole,
-// for projected grids the shorter side at the four corner cells and the
+// latitude-longitude grids the east-west side of the row nearest a pole
+// (along its equatorward edge when the row reaches the pole), for
+// projected grids the shorter side at the four corner cells and the
 // centre.
 func (g *Grid) MinCellSideM() float64 {
 	best := math.Inf(1)
@@ -640,6 +641,14 @@ func (g *Grid) MinCellSideM() float64 {
 			pole, other := top, bot
 			if math.Abs(bot) > math.Abs(top) {
 				pole, other = bot, top
+			}
+			if 90-math.Abs(pole) < 1e-9 {
+				// A cell on a pole (to the rounding of the geotransform:
+				// 90 - 2160/12 is not -90) has no poleward side (measured,
+				// the rounding left 2e-12 m, and the hull's edges were cut
+				// every 2e-12 m until memory ran out): its shortest
+				// east-west side is along its other edge.
+				pole, other = other, pole
 			}
 			ys[0], ys[1], ys[2] = pole, pole, other
 		}

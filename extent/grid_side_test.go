@@ -26,6 +26,12 @@ func TestMinCellSideM(t *testing.T) {
 		// Geod.inv(10, 0, 10, -0.25): the centre cell's north-south side,
 		// shorter than any east-west side of 0.25 degrees at +-5.
 		{"across the equator", 40, 40, [6]float64{10, 0.25, 0, 5, 0, -0.25}, 27643.570716999868},
+		// Geod.inv(-180, 90 - 1/12, -180 + 1/12, 90 - 1/12): the whole
+		// globe at 5 arc-minutes, whose top and bottom rows reach the
+		// poles; their poleward sides have no length (the rounding left
+		// 2.3e-12 m, and the hull's edges cut every 2.3e-12 m ran out of
+		// memory).
+		{"whole globe, poles", 4320, 2160, [6]float64{-180, 1.0 / 12, 0, 90, 0, -1.0 / 12}, 13.537686284290997},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

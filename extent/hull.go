@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 	"sync"
 	"sync/atomic"
@@ -264,17 +265,19 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		h.projectedRows(g, box, done)
 		return nil
 	}
+	// A latitude-longitude grid's centres are its geotransform's (Grid.RowLonLat's
+	// coordinates), computed as needed: no row of the grid's width is held.
 	parallelRows(g.Height, func() func(row int) {
-		lonsR := make([]float64, g.Width)
-		latsR := make([]float64, g.Width)
 		return func(row int) {
-			g.RowLonLat(row, lonsR, latsR)
+			lon := func(c int) float64 { x, _ := g.Centre(c, row); return x }
+			_, lat := g.Centre(0, row)
 			inside := func(c int) bool {
-				return !math.IsNaN(latsR[c]) && box.has(lonsR[c], latsR[c]) && h.contains(lonsR[c], latsR[c])
+				l := lon(c)
+				return !math.IsNaN(lat) && box.has(l, lat) && h.contains(l, lat)
 			}
 			var in rowRuns
-			if lat, ok := alongParallel(lonsR, latsR); ok {
-				in = h.rowRuns(lat, lonsR, box, inside)
+			if alongParallel(g.Width, lon, lat) {
+				in = h.rowRuns(lat, g.Width, lon, box, inside)
 			} else {
 				for c := 0; c < g.Width; c++ {
 					if inside(c) {
@@ -332,35 +335,21 @@ func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, 
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			pts := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
-			for k := range tileSide {
-				pts.lons[k], pts.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
-			}
+			pts := newBandPoints(box)
 			var in [tileSide]rowRuns
 			for r0 := range bands {
 				h := min(tileSide, g.Height-r0)
 				for k := range h {
-					pts.prepareRow(g, r0+k, k)
 					in[k] = nil
 				}
-				for c0 := 0; c0 < g.Width; c0 += tileSide {
-					c1 := min(c0+tileSide, g.Width)
-					switch hc.side(pts, 0, h, c0, c1) {
-					case 1:
-						for k := range h {
-							in[k] = appendRun(in[k], int32(c0), int32(c1))
-						}
-					case 0:
-						for k := range h {
-							pts.make(k, c0, c1)
-							lons, lats := pts.lons[k], pts.lats[k]
-							for c := c0; c < c1; c++ {
-								if !math.IsNaN(lats[c]) && box.has(lons[c], lats[c]) && s.contains(lons[c], lats[c]) {
-									in[k] = appendRun(in[k], int32(c), int32(c+1))
-								}
-							}
-						}
+				// A window of fieldWindow columns at a time: memory
+				// bounded whatever the grid's width.
+				for a := 0; a < g.Width; a += fieldWindow {
+					pts.window(g, a, min(a+fieldWindow, g.Width), min(fieldWindow, g.Width))
+					for k := range h {
+						pts.prepareRow(g, r0+k, k)
 					}
+					s.windowRuns(hc, pts, box, h, &in)
 				}
 				for k := range h {
 					done(r0+k, in[k])
@@ -373,6 +362,31 @@ func (s *sphericalHull) projectedRows(g *Grid, box reachBox, done func(row int, 
 	}
 	close(bands)
 	wg.Wait()
+}
+
+// windowRuns appends to in[k] the runs of the cells of band row k (of
+// h) inside the hull and the box, in the columns of pts' window, tile by
+// tile (see projectedRows).
+func (s *sphericalHull) windowRuns(hc hullCap, pts *bandPoints, box reachBox, h int, in *[tileSide]rowRuns) {
+	w := pts.g.Width
+	for c0 := pts.off; c0 < pts.end; c0 += tileSide {
+		c1 := min(c0+tileSide, w)
+		switch hc.side(pts, 0, h, c0, c1) {
+		case 1:
+			for k := range h {
+				in[k] = appendRun(in[k], int32(c0), int32(c1))
+			}
+		case 0:
+			for k := range h {
+				pts.make(k, c0, c1)
+				for c := c0; c < c1; c++ {
+					if lat, lon := pts.ll(k, c); !math.IsNaN(lat) && box.has(lon, lat) && s.contains(lon, lat) {
+						in[k] = appendRun(in[k], int32(c), int32(c+1))
+					}
+				}
+			}
+		}
+	}
 }
 
 // parallelRows calls the function made by newWorker for every row in
@@ -398,20 +412,23 @@ func parallelRows(height int, newWorker func() func(row int)) {
 	wg.Wait()
 }
 
-// alongParallel reports whether a row's cell centres lie on one parallel
-// with longitudes strictly increasing (a latitude-longitude grid whose
-// coordinates reach WGS84 unchanged), and returns its latitude.
-func alongParallel(lons, lats []float64) (float64, bool) {
-	lat := lats[0]
+// alongParallel reports whether the w cell centres of a row at latitude
+// lat (on a latitude-longitude grid whose coordinates reach WGS84
+// unchanged, every centre of a row has its latitude) lie at strictly
+// increasing longitudes lon(c).
+func alongParallel(w int, lon func(c int) float64, lat float64) bool {
 	if math.IsNaN(lat) {
-		return 0, false
+		return false
 	}
-	for c := range lats {
-		if lats[c] != lat || c > 0 && !(lons[c] > lons[c-1]) {
-			return 0, false
+	prev := lon(0)
+	for c := 1; c < w; c++ {
+		l := lon(c)
+		if !(l > prev) {
+			return false
 		}
+		prev = l
 	}
-	return lat, true
+	return true
 }
 
 // hullMargin is how many cells on each side of a computed boundary
@@ -420,16 +437,16 @@ func alongParallel(lons, lats []float64) (float64, bool) {
 const hullMargin = 2
 
 // rowRuns returns the runs of a row's cells inside the hull and the box,
-// where the row's centres lie on the parallel lat at increasing longitudes
-// lons and inside(c) is the exact test of cell c. Membership can change
-// along the parallel only where it crosses one of the great circles that
-// bound the hull (its edges, and the edge of the projection's hemisphere)
-// or a meridian bounding the box. Cells within hullMargin of a crossing
-// are tested one by one; each longer stretch between them is tested at its
-// first cell, which decides the whole stretch. The result is the same as
-// testing every cell.
-func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, inside func(c int) bool) rowRuns {
-	w := len(lons)
+// where the row's w centres lie on the parallel lat at increasing
+// longitudes lon(c) and inside(c) is the exact test of cell c. Membership
+// can change along the parallel only where it crosses one of the great
+// circles that bound the hull (its edges, and the edge of the
+// projection's hemisphere) or a meridian bounding the box. Cells within
+// hullMargin of a crossing are tested one by one; each longer stretch
+// between them is tested at its first cell, which decides the whole
+// stretch. The result is the same as testing every cell. It holds the
+// crossings, never a row of the grid's width.
+func (s *sphericalHull) rowRuns(lat float64, w int, lon func(c int) float64, box reachBox, inside func(c int) bool) rowRuns {
 	var at []float64
 	// Great circle with normal n meets the parallel where
 	// n0 cos(phi) cos(lambda) + n1 cos(phi) sin(lambda) = -n2 sin(phi).
@@ -460,35 +477,39 @@ func (s *sphericalHull) rowRuns(lat float64, lons []float64, box reachBox, insid
 	if box.lonH < 180 {
 		at = append(at, box.lonC-box.lonH, box.lonC+box.lonH)
 	}
-	// Mark the cells near each crossing, at every turn of 360 degrees
-	// from just below the row's first longitude to beyond its last.
-	exact := make([]bool, w)
+	// The cells near each crossing, at every turn of 360 degrees from
+	// just below the row's first longitude to beyond its last: spans of
+	// columns [a, b], in order of a.
+	first, last := lon(0), lon(w-1)
+	var near [][2]int
 	for _, l := range at {
-		l = lons[0] - 360 + math.Mod(math.Mod(l-lons[0], 360)+360, 360)
-		for ; l <= lons[w-1]+360; l += 360 {
-			i := sort.SearchFloat64s(lons, l)
-			for c := max(0, i-hullMargin-1); c <= min(w-1, i+hullMargin); c++ {
-				exact[c] = true
-			}
+		l = first - 360 + math.Mod(math.Mod(l-first, 360)+360, 360)
+		for ; l <= last+360; l += 360 {
+			i := sort.Search(w, func(c int) bool { return lon(c) >= l })
+			near = append(near, [2]int{max(0, i-hullMargin-1), min(w-1, i+hullMargin)})
 		}
 	}
+	slices.SortFunc(near, func(x, y [2]int) int { return x[0] - y[0] })
 	var out rowRuns
-	for c := 0; c < w; {
-		if exact[c] {
-			if inside(c) {
-				out = appendRun(out, int32(c), int32(c+1))
-			}
-			c++
+	c := 0 // the first cell not yet decided
+	for _, sp := range near {
+		if sp[1] < c {
 			continue
 		}
-		end := c
-		for end < w && !exact[end] {
-			end++
+		a := max(sp[0], c)
+		if c < a && inside(c) {
+			// The stretch before the span, decided by its first cell.
+			out = appendRun(out, int32(c), int32(a))
 		}
-		if inside(c) {
-			out = appendRun(out, int32(c), int32(end))
+		for x := a; x <= sp[1]; x++ {
+			if inside(x) {
+				out = appendRun(out, int32(x), int32(x+1))
+			}
 		}
-		c = end
+		c = sp[1] + 1
+	}
+	if c < w && inside(c) {
+		out = appendRun(out, int32(c), int32(w))
 	}
 	return out
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"slices"
 	"sync"
 	"testing"
@@ -57,14 +58,15 @@ func TestHullRowRuns(t *testing.T) {
 						want = appendRun(want, int32(c), int32(c+1))
 					}
 				}
-				lat, ok := alongParallel(lons, lats)
-				if !ok {
+				lon := func(c int) float64 { return lons[c] }
+				lat := lats[0]
+				if !alongParallel(g.Width, lon, lat) {
 					continue
 				}
 				if len(want) > 0 {
 					fast++
 				}
-				if got := h.rowRuns(lat, lons, box, inside); !slices.Equal(got, want) {
+				if got := h.rowRuns(lat, g.Width, lon, box, inside); !slices.Equal(got, want) {
 					t.Fatalf("row %d (lat %v): %v, want %v", row, lat, got, want)
 				}
 			}
@@ -153,12 +155,10 @@ func TestHullProjectedRows(t *testing.T) {
 			}
 			// The tiles hullCap settles, inside and outside.
 			hc := h.newHullCap(box)
-			bp := &bandPoints{lons: make([][]float64, tileSide), lats: make([][]float64, tileSide)}
-			for k := range tileSide {
-				bp.lons[k], bp.lats[k] = make([]float64, g.Width), make([]float64, g.Width)
-			}
+			bp := newBandPoints(box)
 			for r0 := 0; r0 < g.Height; r0 += tileSide {
 				hb := min(tileSide, g.Height-r0)
+				bp.window(g, 0, g.Width, g.Width)
 				for k := range hb {
 					bp.prepareRow(g, r0+k, k)
 				}
@@ -177,4 +177,57 @@ func TestHullProjectedRows(t *testing.T) {
 		t.Errorf("%d tiles settled inside and %d outside: the cases do not probe both", settled[0], settled[1])
 	}
 	t.Logf("%d tiles settled inside, %d outside", settled[0], settled[1])
+}
+
+// TestHullMemoryWidth: building the hull on a latitude-longitude grid
+// allocates no more on a grid 262,144 cells wide than on one 8,192 wide
+// (16 rows of 0.001 degrees, the hull of 30 points in the first 8
+// degrees, so both grids have the same hull cells): under twice as much
+// (our cut-off). Each worker held a row's longitudes and latitudes, and
+// each row a mark per cell, when the rows were tested from arrays of the
+// grid's width (14.8 MB here against 2.6 MB; now 2.3 MB both).
+func TestHullMemoryWidth(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 9))
+	var pts []LonLat
+	for range 30 {
+		pts = append(pts, LonLat{Lon: 1 + 6*rng.Float64(), Lat: 44.988 + 0.013*rng.Float64()})
+	}
+	build := func(w int) (uint64, [][]int32) {
+		g, err := NewGrid(w, tileSide, [6]float64{0, 0.001, 0, 45.003, 0, -0.001}, "EPSG:4326")
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer g.Close()
+		b := &builder{g: g, f: &Family{Grid: g, Chains: map[string][]int{}}}
+		runtime.GC()
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		if err := b.hull(pts, []float64{0}); err != nil {
+			t.Fatal(err)
+		}
+		runtime.ReadMemStats(&after)
+		var rows [][]int32
+		for r := range g.Height {
+			rows = append(rows, b.f.Runs(0, r))
+		}
+		return after.TotalAlloc - before.TotalAlloc, rows
+	}
+	narrowB, narrow := build(8192)
+	wideB, wide := build(262144)
+	t.Logf("allocated %d bytes 8,192 cells wide, %d bytes 262,144 wide", narrowB, wideB)
+	if fmt.Sprint(narrow) != fmt.Sprint(wide) {
+		t.Fatalf("hull cells differ: %v narrow, %v wide", narrow, wide)
+	}
+	cells := 0
+	for _, r := range narrow {
+		for i := 0; i < len(r); i += 2 {
+			cells += int(r[i+1] - r[i])
+		}
+	}
+	if cells == 0 {
+		t.Fatal("no cell in the hull: the case does not probe the rows")
+	}
+	if wideB > 2*narrowB {
+		t.Errorf("the hull allocated %d bytes on a grid 262,144 cells wide, %d on one 8,192 wide: memory grows with the width", wideB, narrowB)
+	}
 }

@@ -310,66 +310,85 @@ func pathBound(lat1, lon1, lat2, lon2 float64) float64 {
 	return l*(1+1e-6) + 1e-3
 }
 
+// farthestWindow is the most columns of a row FarthestBound holds at a
+// time (rounded down to a multiple of its step), so that its memory does
+// not grow with the grid's width.
+const farthestWindow = 4096
+
 // FarthestBound returns an upper bound on the distance (m) from the centre of
 // any cell of a width x height grid to the nearest site: the largest d + rho
 // over tiles of step x step cells (d at the tile's centre cell, rho as in
 // Distances). It makes one nearest-site query per tile, so it costs about
 // width*height/step^2 queries; tiles with no geographic position at their
 // centre or a corner are skipped, so the bound covers the cells of the
-// other tiles. It returns 0 when no tile can be measured.
+// other tiles. It returns 0 when no tile can be measured. The tiles are
+// taken a window of at most farthestWindow columns at a time.
 func (f *Field) FarthestBound(width, height, step int) float64 {
 	step = max(step, 1)
-	// The centres of a tile row's middle, top and bottom rows, each
-	// computed into buffers kept from one tile row to the next (fresh
-	// ones per row cost page faults); a row met twice in a tile row is
-	// taken from the earlier slot (the rows of earlier tile rows, left in
-	// the slots, are all above r0).
+	win := max(step, farthestWindow/step*step)
+	// The centres of a tile row's middle, top and bottom rows in the
+	// window's columns, each computed into buffers kept from one window
+	// to the next (fresh ones cost page faults); a row met twice in a
+	// tile row is taken from the earlier slot.
 	type slot struct {
-		r        int
+		r, c0    int
 		lon, lat []float64
 	}
 	var slots [3]slot
 	for i := range slots {
-		slots[i] = slot{r: -1, lon: make([]float64, width), lat: make([]float64, width)}
+		n := min(win, width)
+		slots[i] = slot{r: -1, lon: make([]float64, n), lat: make([]float64, n)}
 	}
-	row := func(i, r int) ([]float64, []float64) {
+	row := func(i, r, c0, c1 int) ([]float64, []float64) {
 		for _, s := range slots[:i] {
-			if s.r == r {
-				return s.lon, s.lat
+			if s.r == r && s.c0 == c0 {
+				return s.lon[:c1-c0], s.lat[:c1-c0]
 			}
 		}
 		s := &slots[i]
-		s.r = r
-		f.centres(r, 0, width, s.lon, s.lat)
-		return s.lon, s.lat
+		s.r, s.c0 = r, c0
+		f.centres(r, c0, c1, s.lon[:c1-c0], s.lat[:c1-c0])
+		return s.lon[:c1-c0], s.lat[:c1-c0]
 	}
 	far := 0.0
 	for r0 := 0; r0 < height; r0 += step {
 		r1 := min(r0+step, height)
-		mlon, mlat := row(0, (r0+r1)/2)
-		tlon, tlat := row(1, r0)
-		blon, blat := row(2, r1-1)
-		for c0 := 0; c0 < width; c0 += step {
-			c1 := min(c0+step, width)
-			cc := (c0 + c1) / 2
-			lat, lon := mlat[cc], mlon[cc]
-			if math.IsNaN(lat) {
-				continue
-			}
-			rho, ok := 0.0, true
-			for _, p := range [4][2]float64{{tlat[c0], tlon[c0]}, {tlat[c1-1], tlon[c1-1]}, {blat[c0], blon[c0]}, {blat[c1-1], blon[c1-1]}} {
-				if math.IsNaN(p[0]) {
-					ok = false
-					break
-				}
-				rho = math.Max(rho, geodesy.Distance(lat, lon, p[0], p[1]))
-			}
-			if !ok {
-				continue
-			}
-			_, d := f.ix.Nearest(lat, lon, 0)
-			far = math.Max(far, d+rho*1.02+1)
+		for a := 0; a < width; a += win {
+			e := min(a+win, width)
+			far = math.Max(far, f.farthestIn(row, r0, r1, a, e, step))
 		}
+	}
+	return far
+}
+
+// farthestIn is FarthestBound's largest d + rho over the tiles of rows
+// [r0, r1) and columns [a, e), the centres of row r in columns [a, e)
+// given by row(slot, r, a, e) (indexed from a).
+func (f *Field) farthestIn(row func(i, r, c0, c1 int) ([]float64, []float64), r0, r1, a, e, step int) float64 {
+	mlon, mlat := row(0, (r0+r1)/2, a, e)
+	tlon, tlat := row(1, r0, a, e)
+	blon, blat := row(2, r1-1, a, e)
+	far := 0.0
+	for c0 := a; c0 < e; c0 += step {
+		c1 := min(c0+step, e)
+		i0, i1, ic := c0-a, c1-1-a, (c0+c1)/2-a
+		lat, lon := mlat[ic], mlon[ic]
+		if math.IsNaN(lat) {
+			continue
+		}
+		rho, ok := 0.0, true
+		for _, p := range [4][2]float64{{tlat[i0], tlon[i0]}, {tlat[i1], tlon[i1]}, {blat[i0], blon[i0]}, {blat[i1], blon[i1]}} {
+			if math.IsNaN(p[0]) {
+				ok = false
+				break
+			}
+			rho = math.Max(rho, geodesy.Distance(lat, lon, p[0], p[1]))
+		}
+		if !ok {
+			continue
+		}
+		_, d := f.ix.Nearest(lat, lon, 0)
+		far = math.Max(far, d+rho*1.02+1)
 	}
 	return far
 }

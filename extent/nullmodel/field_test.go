@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -195,11 +196,12 @@ func TestPathBound(t *testing.T) {
 }
 
 // TestFarthestBoundRows: FarthestBound, which keeps three rows of cell
-// centres from one tile row to the next, gives the value of a direct
+// centres (in windows of columns), gives the value of a direct
 // computation with fresh centres for every tile (the maximum over tiles
 // of d + 1.02 rho + 1), bit for bit, on grids whose last tile row or
-// column is short, of one row, and with a step of 1, on a grid whose
-// first column's centres have no position (NaN: its tiles are skipped).
+// column is short, of one row, with a step of 1, and wider than
+// farthestWindow (taken in windows of columns), on a grid whose first
+// column's centres have no position (NaN: its tiles are skipped).
 func TestFarthestBoundRows(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
 	var lats, lons []float64
@@ -225,7 +227,7 @@ func TestFarthestBoundRows(t *testing.T) {
 		centres(row, col, col+1, lo, la)
 		return la[0], lo[0]
 	}
-	for _, tc := range []struct{ w, h, step int }{{130, 97, 16}, {130, 97, 1}, {37, 1, 8}, {20, 30, 16}, {64, 64, 32}} {
+	for _, tc := range []struct{ w, h, step int }{{130, 97, 16}, {130, 97, 1}, {37, 1, 8}, {20, 30, 16}, {64, 64, 32}, {9001, 20, 64}, {4100, 3, 1}} {
 		want := 0.0
 		for r0 := 0; r0 < tc.h; r0 += tc.step {
 			r1 := min(r0+tc.step, tc.h)
@@ -254,5 +256,33 @@ func TestFarthestBoundRows(t *testing.T) {
 		if got := f.FarthestBound(tc.w, tc.h, tc.step); got != want || want == 0 {
 			t.Errorf("%d x %d, step %d: %v, want %v", tc.w, tc.h, tc.step, got, want)
 		}
+	}
+}
+
+// TestFarthestBoundMemoryWidth: FarthestBound allocates no more for a grid
+// 262,144 cells wide than for one 8,192 wide (4 rows of 0.001 degrees,
+// tiles of 64): under twice as much (our cut-off). It held three rows of
+// centres of the grid's width (12.6 MB here against 0.4 MB; now 0.2 MB
+// both).
+func TestFarthestBoundMemoryWidth(t *testing.T) {
+	ix, err := geodesy.NewIndex([]float64{45, 44.99}, []float64{3, 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := New(ix, lonLatGrid(0, 45.002, 0.001))
+	alloc := func(w int) uint64 {
+		runtime.GC()
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		if f.FarthestBound(w, 4, 64) == 0 {
+			t.Fatal("no tile measured")
+		}
+		runtime.ReadMemStats(&after)
+		return after.TotalAlloc - before.TotalAlloc
+	}
+	narrow, wide := alloc(8192), alloc(262144)
+	t.Logf("allocated %d bytes 8,192 cells wide, %d bytes 262,144 wide", narrow, wide)
+	if wide > 2*narrow {
+		t.Errorf("FarthestBound allocated %d bytes for a grid 262,144 cells wide, %d for one 8,192 wide: memory grows with the width", wide, narrow)
 	}
 }
