@@ -49,10 +49,15 @@ from the documented rules WITHOUT areasweep:
               vertices (Geod.npts every 100 m); ecoregion units held (OGR
               Contains of the training points) and touching (OGR
               Intersects), placed where they meet the grid. areasweep
-              densifies the boundary every cell side (README), which can
-              overestimate a distance g by up to sqrt(g^2 + (side/2)^2) - g:
-              cells inside the buffer by less than that are "ambiguous",
-              listed and not asserted; so are, for a region in another CRS
+              densifies a region's boundary every cell side (README), which
+              can overestimate a distance g by up to sqrt(g^2 + (side/2)^2)
+              - g: cells inside a region buffer by less than that are
+              "ambiguous", listed and not asserted; it cuts the hull's
+              boundary so that a distance at a hull buffer's d is over by
+              at most 1 m (README), and this script's own 100 m sampling
+              overestimates by up to 100^2 / (8 d): cells whose distance
+              here lies within the sum of the two of d are ambiguous; so
+              are, for a region in another CRS
               than the grid's, the centres within 0.01 cell of its true
               edge and the cells whose distance to it is within 0.01 cell
               side of a buffer's (README: areasweep follows such edges to
@@ -819,8 +824,9 @@ def study(spec):
             within = pd <= dm
             gd = geodesic(near)
             within[near] = gd <= dm
-            half = side / 2
-            amb = near[(gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3) & ~hm[near]]
+            # areasweep's 1 m (README) and this sampling's own error at d.
+            slack = 1.0 + 100.0 ** 2 / (8 * dm) + 1e-3
+            amb = near[(np.abs(gd - dm) < slack) & ~hm[near]]
             extents.append((f"hull_{d:g}km", (hm | within) & valid, sorted(int(a) for a in amb)))
     params = {}
     if spec.get("ecoregions"):

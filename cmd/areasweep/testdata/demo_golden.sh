@@ -166,6 +166,14 @@
 #     ±0.02, paired differences from the base extent): ...", not a bracket
 #     after a bracket; results.json's verdicts[].sentence only, every
 #     number and scores.csv unchanged);
+#   - rewritten when the hull's boundary was cut for its buffers at
+#     sqrt(8 d 1 m) (894 m for the demo's 100 km) instead of the grid's
+#     shortest cell side (6.9 km on the demo's grid; 0.13 m on a global
+#     30-arc-second grid reaching a pole, out of memory): the demo's
+#     hull_100km gains one cell (10,811 to 10,812; its centre lies
+#     99,991 m from the hull's boundary by pyproj Geod, so inside), its
+#     scores and what derives from them moved in the last digits; every
+#     other extent is unchanged.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
