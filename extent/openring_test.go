@@ -1,10 +1,14 @@
 package extent
 
 import (
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/paulmach/orb/planar"
 )
 
 // TestOpenRingNamed: a polygon ring that does not end at its first point
@@ -66,5 +70,48 @@ func TestOpenRingNamed(t *testing.T) {
 	ok := write("closed.geojson", `{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[`+closed+`]}}]}`)
 	if _, _, err := ReadShape(ok, g); err != nil {
 		t.Errorf("closed ring: %v", err)
+	}
+}
+
+// TestLongEdgeAdvice: a ring edge spanning more than 180 degrees of
+// longitude is refused (it may be the short way across 180 degrees), with
+// both readings named and what to do for each; before, the message said
+// the edge "crosses the antimeridian" even for a box drawn the long way
+// round from -160 to 160, whose fix is to add vertices along the edge.
+// The same box with a vertex every 10 degrees is read.
+func TestLongEdgeAdvice(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	g, _ := geoGrid(t, -180, 80, 1, 360, 160)
+	box := filepath.Join(dir, "box.geojson")
+	if err := os.WriteFile(box, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[-160,-50],[160,-50],[160,70],[-160,70],[-160,-50]]]}}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, _, err := ReadShape(box, g)
+	if err == nil {
+		t.Fatal("read a box with an edge of 320 degrees")
+	}
+	for _, w := range []string{"box.geojson feature 1", "spans 320 degrees of longitude (from lon -160.0000 to 160.0000", "split it there", "ogr2ogr -segmentize 10"} {
+		if !strings.Contains(err.Error(), w) {
+			t.Errorf("%q lacks %q", err, w)
+		}
+	}
+	var south, north []string
+	for lon := -160; lon <= 160; lon += 10 {
+		south = append(south, fmt.Sprintf("[%d,-50]", lon))
+		north = append([]string{fmt.Sprintf("[%d,70]", lon)}, north...)
+	}
+	ring := strings.Join(append(append(south, north...), "[-160,-50]"), ",")
+	long := filepath.Join(dir, "long.geojson")
+	if err := os.WriteFile(long, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[`+ring+`]]}}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, _, err := ReadShape(long, g)
+	if err != nil {
+		t.Fatalf("the box with a vertex every 10 degrees: %v", err)
+	}
+	// Worked by hand: 320 by 120 degrees, in the grid's coordinates.
+	if a := planar.Area(s.Grid); math.Abs(a-320*120) > 1e-6 {
+		t.Errorf("area %g square degrees, want %d", a, 320*120)
 	}
 }

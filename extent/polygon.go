@@ -1527,7 +1527,7 @@ func checkRingLon(r orb.Ring, shifted bool) error {
 			if shifted {
 				a, b = wrapInto(a, -180), wrapInto(b, -180)
 			}
-			return fmt.Errorf("a polygon edge crosses the antimeridian (from lon %.4f to %.4f, lat %.4f to %.4f); split the polygon at 180 degrees", a, b, r[i-1][1], r[i][1])
+			return fmt.Errorf("a polygon edge spans %.4g degrees of longitude (from lon %.4f to %.4f, lat %.4f to %.4f), which is how a file crossing the antimeridian writes the short way across 180 degrees, and the grid cannot follow it; if the polygon crosses 180 degrees, split it there; if the edge runs the long way, straight in longitude and latitude, add vertices along it (ogr2ogr -segmentize 10 OUT.gpkg IN adds one every 10 degrees)", math.Abs(r[i][0]-r[i-1][0]), a, b, r[i-1][1], r[i][1])
 		}
 	}
 	return nil
