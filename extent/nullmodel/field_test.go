@@ -265,6 +265,13 @@ func TestFarthestBoundRows(t *testing.T) {
 // centres of the grid's width (12.6 MB here against 0.4 MB; now 0.2 MB
 // both).
 func TestFarthestBoundMemoryWidth(t *testing.T) {
+	if raceEnabled {
+		// The nearest-site queries take their buffers from a sync.Pool,
+		// which the race detector empties at random: the counts then grow
+		// with the number of tiles (measured: 0.24 MB against 1.27 MB).
+		// The test runs in the suite without -race.
+		t.Skip("allocation counts are not meaningful under the race detector")
+	}
 	ix, err := geodesy.NewIndex([]float64{45, 44.99}, []float64{3, 5})
 	if err != nil {
 		t.Fatal(err)
