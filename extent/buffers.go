@@ -175,12 +175,12 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 
 // boundaryEdges calls f with each edge a-b of the rings of s in order,
 // leaving out the seam edges: on a latitude-longitude grid those of
-// seamEdge, on a projected grid those whose ends both lie on the
-// antimeridian (nearAntimeridian of their longitudes in s.LonLat). On a
-// world map centred on Greenwich (Mollweide, Equal Earth, EASE-Grid) a
+// seamEdge, on a projected grid those of projectedSeam (from s.LonLat). On
+// a world map centred on Greenwich (Mollweide, Equal Earth, EASE-Grid) a
 // region split at 180 degrees is two polygons on the map's opposite
-// edges, and the cut, taken as a boundary, made each shrunk region lose a
-// strip along 180 degrees.
+// edges, and on a polar grid a cap with vertices along its cut to the
+// pole has a slit there: taken as a boundary, the cut made each shrunk
+// region lose a strip along 180 degrees.
 func boundaryEdges(g *Grid, s Shape, f func(a, b orb.Point)) {
 	for i, p := range s.Grid {
 		for j, r := range p {
@@ -190,7 +190,7 @@ func boundaryEdges(g *Grid, s Shape, f func(a, b orb.Point)) {
 			}
 			for k := 1; k < len(r); k++ {
 				a, b := r[k-1], r[k]
-				if g.Geographic && seamEdge(a, b) || ll != nil && nearAntimeridian(ll[k-1][0]) && nearAntimeridian(ll[k][0]) {
+				if g.Geographic && seamEdge(a, b) || ll != nil && projectedSeam(ll[k-1], ll[k]) {
 					continue
 				}
 				f(a, b)
@@ -199,10 +199,25 @@ func boundaryEdges(g *Grid, s Shape, f func(a, b orb.Point)) {
 	}
 }
 
-// antimeridianTol is how far (degrees of longitude) a vertex transformed
-// from a projected grid may lie from 180 degrees and count as on it: our
+// antimeridianTol is how far (degrees) a vertex transformed from a
+// projected grid may lie from 180 degrees of longitude, or from a pole,
+// and count as on it: our
 // choice, about 0.1 m, above PROJ's rounding and edgeVertexLonLat's move.
 const antimeridianTol = 1e-6
+
+// projectedSeam reports whether the edge a-b, in longitude and latitude
+// transformed from a projected grid, runs along the antimeridian or a
+// pole line (seamEdge, within antimeridianTol). A pole, transformed, takes
+// any longitude: an edge from it to a point on the antimeridian runs along
+// the antimeridian.
+func projectedSeam(a, b orb.Point) bool {
+	atPole := func(lat float64) bool { return math.Abs(lat) >= 90-antimeridianTol }
+	pa, pb := atPole(a[1]), atPole(b[1])
+	if pa && pb {
+		return a[1]*b[1] > 0
+	}
+	return (pa || nearAntimeridian(a[0])) && (pb || nearAntimeridian(b[0]))
+}
 
 // nearAntimeridian reports whether longitude lon lies within
 // antimeridianTol of 180 degrees east or west of Greenwich, in any turn.
