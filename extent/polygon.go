@@ -1401,6 +1401,17 @@ func repairWarning(path string, bad []int, why []string) string {
 	return fmt.Sprintf("%s features %s had invalid geometry%s; repaired with GDAL MakeValid, which keeps all of their area: check the repaired outlines in extents.gpkg", path, featureList(bad), detail)
 }
 
+// offMapVertex is the error for a polygon vertex (x, y), in the raster's
+// CRS, that has no longitude and latitude: it lies off the Earth in that
+// CRS, beyond the edge of a world map (a region drawn in Mollweide or
+// EASE-Grid coordinates past the map's outline) or, for a layer in
+// longitude/latitude, where the projection cannot go. The message said
+// only that the vertex "cannot be transformed to WGS84", with no advice.
+func offMapVertex(g *Grid, x, y float64) error {
+	b := g.Bounds()
+	return fmt.Errorf("a vertex (%g, %g), in the raster's CRS (%s), lies off the Earth there: beyond the edge of the map, where PROJ gives no longitude and latitude; clip the layer to the map's outline (ogr2ogr -clipdst XMIN YMIN XMAX YMAX OUT.gpkg IN, with the raster's extent %.0f %.0f %.0f %.0f, is enough where the map fills the raster; on a world map whose corners lie off the Earth, give the polygons in longitude/latitude, split at 180 degrees)", x, y, crsName(g.WKT), b[0], b[1], b[2], b[3])
+}
+
 // edgeVertexLonLat returns the WGS84 longitude and latitude of grid-CRS
 // vertex (x, y), whose transformation failed, from the vertex moved toward
 // the raster's centre by 1e-12, then 1e-10 of its distance from it. A
@@ -1495,7 +1506,7 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 				if math.IsNaN(lons[k]) {
 					var ok bool
 					if lons[k], lats[k], ok = g.edgeVertexLonLat(xs[k], ys[k]); !ok {
-						return Shape{}, fmt.Errorf("a vertex (%g, %g) cannot be transformed to WGS84", xs[k], ys[k])
+						return Shape{}, offMapVertex(g, xs[k], ys[k])
 					}
 				}
 				rr[k] = orb.Point{lons[k], lats[k]}

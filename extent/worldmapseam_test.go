@@ -2,7 +2,11 @@ package extent
 
 import (
 	"math"
+	"path/filepath"
+	"strings"
 	"testing"
+
+	"github.com/airbusgeo/godal"
 
 	"areasweep/extent/geodesy"
 )
@@ -96,5 +100,56 @@ func TestRegionSeamOnProjectedGrid(t *testing.T) {
 				t.Fatalf("checked %d cells, %d within 3 degrees of 180: too few to test the seam", checked, nearSeam)
 			}
 		})
+	}
+}
+
+// TestRegionOffTheMap: a region drawn in the raster's own CRS (Mollweide,
+// ESRI:54009) with a vertex beyond the map's outline (x = 17,000 km at y =
+// 6,000 km, where the map's edge is at about 13,000 km) has no longitude
+// and latitude there. It is refused with the vertex, the reason and what to
+// do; the message used to say only that the vertex "cannot be transformed
+// to WGS84".
+func TestRegionOffTheMap(t *testing.T) {
+	dir := t.TempDir()
+	g, err := NewGrid(362, 182, [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}, "ESRI:54009")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	path := filepath.Join(dir, "beyond.gpkg")
+	writePolygonWKT(t, path, g, "POLYGON ((12000000 4000000, 17000000 6000000, 12000000 6000000, 12000000 4000000))")
+	_, _, err = ReadShape(path, g)
+	if err == nil {
+		t.Fatal("a region off the map was read")
+	}
+	for _, want := range []string{path, "(1.7e+07, 6e+06)", "off the Earth", "clip the layer", "-18100000 -9100000 18100000 9100000", "longitude/latitude"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message lacks %q: %v", want, err)
+		}
+	}
+}
+
+// writePolygonWKT writes a GeoPackage holding one polygon feature, wkt,
+// in grid g's CRS.
+func writePolygonWKT(t *testing.T, path string, g *Grid, wkt string) {
+	t.Helper()
+	Register()
+	ds, err := godal.CreateVector(godal.GeoPackage, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	layer, err := ds.CreateLayer("region", g.SpatialRef(), godal.GTPolygon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	geom, err := godal.NewGeometryFromWKT(wkt, g.SpatialRef())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := layer.NewFeature(geom); err != nil {
+		t.Fatal(err)
+	}
+	if err := ds.Close(); err != nil {
+		t.Fatal(err)
 	}
 }
