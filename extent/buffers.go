@@ -174,17 +174,55 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 }
 
 // boundaryEdges calls f with each edge a-b of the rings of s in order,
-// leaving out the seam edges of a latitude-longitude grid (seamEdge).
+// leaving out the seam edges: on a latitude-longitude grid those of
+// seamEdge, on a projected grid those of projectedSeam (from s.LonLat). On
+// a world map centred on Greenwich (Mollweide, Equal Earth, EASE-Grid) a
+// region split at 180 degrees is two polygons on the map's opposite
+// edges, and on a polar grid a cap with vertices along its cut to the
+// pole has a slit there: taken as a boundary, the cut made each shrunk
+// region lose a strip along 180 degrees.
 func boundaryEdges(g *Grid, s Shape, f func(a, b orb.Point)) {
-	for _, p := range s.Grid {
-		for _, r := range p {
-			for i := 1; i < len(r); i++ {
-				if a, b := r[i-1], r[i]; !g.Geographic || !seamEdge(a, b) {
-					f(a, b)
+	for i, p := range s.Grid {
+		for j, r := range p {
+			var ll orb.Ring
+			if !g.Geographic && i < len(s.LonLat) && j < len(s.LonLat[i]) && len(s.LonLat[i][j]) == len(r) {
+				ll = s.LonLat[i][j]
+			}
+			for k := 1; k < len(r); k++ {
+				a, b := r[k-1], r[k]
+				if g.Geographic && seamEdge(a, b) || ll != nil && projectedSeam(ll[k-1], ll[k]) {
+					continue
 				}
+				f(a, b)
 			}
 		}
 	}
+}
+
+// antimeridianTol is how far (degrees) a vertex transformed from a
+// projected grid may lie from 180 degrees of longitude, or from a pole,
+// and count as on it: our
+// choice, about 0.1 m, above PROJ's rounding and edgeVertexLonLat's move.
+const antimeridianTol = 1e-6
+
+// projectedSeam reports whether the edge a-b, in longitude and latitude
+// transformed from a projected grid, runs along the antimeridian or a
+// pole line (seamEdge, within antimeridianTol). A pole, transformed, takes
+// any longitude: an edge from it to a point on the antimeridian runs along
+// the antimeridian.
+func projectedSeam(a, b orb.Point) bool {
+	atPole := func(lat float64) bool { return math.Abs(lat) >= 90-antimeridianTol }
+	pa, pb := atPole(a[1]), atPole(b[1])
+	if pa && pb {
+		return a[1]*b[1] > 0
+	}
+	return (pa || nearAntimeridian(a[0])) && (pb || nearAntimeridian(b[0]))
+}
+
+// nearAntimeridian reports whether longitude lon lies within
+// antimeridianTol of 180 degrees east or west of Greenwich, in any turn.
+func nearAntimeridian(lon float64) bool {
+	return math.Abs(math.Mod(math.Abs(lon), 360)-180) <= antimeridianTol
 }
 
 // seamEdge reports whether the edge a-b runs along the antimeridian or a

@@ -1401,6 +1401,40 @@ func repairWarning(path string, bad []int, why []string) string {
 	return fmt.Sprintf("%s features %s had invalid geometry%s; repaired with GDAL MakeValid, which keeps all of their area: check the repaired outlines in extents.gpkg", path, featureList(bad), detail)
 }
 
+// offMapVertex is the error for a polygon vertex (x, y), in the raster's
+// CRS, that has no longitude and latitude: it lies off the Earth in that
+// CRS, beyond the edge of a world map (a region drawn in Mollweide or
+// EASE-Grid coordinates past the map's outline) or, for a layer in
+// longitude/latitude, where the projection cannot go. The message said
+// only that the vertex "cannot be transformed to WGS84", with no advice.
+func offMapVertex(g *Grid, x, y float64) error {
+	b := g.Bounds()
+	return fmt.Errorf("a vertex (%g, %g), in the raster's CRS (%s), lies off the Earth there: beyond the edge of the map, where PROJ gives no longitude and latitude; clip the layer to the map's outline (ogr2ogr -clipdst XMIN YMIN XMAX YMAX OUT.gpkg IN, with the raster's extent %.0f %.0f %.0f %.0f, is enough where the map fills the raster; on a world map whose corners lie off the Earth, give the polygons in longitude/latitude, split at 180 degrees)", x, y, crsName(g.WKT), b[0], b[1], b[2], b[3])
+}
+
+// edgeVertexLonLat returns the WGS84 longitude and latitude of grid-CRS
+// vertex (x, y), whose transformation failed, from the vertex moved toward
+// the raster's centre by 1e-12, then 1e-10 of its distance from it. A
+// vertex on the 180th meridian projected to the edge of a world map
+// (Mollweide's ellipse) lands, for about half of the latitudes, a rounding
+// error outside it, where PROJ's inverse fails: a latitude-longitude region
+// split at 180 degrees, as the README advises, was refused ("a vertex
+// (1.39389e+07, 5.72608e+06) cannot be transformed to WGS84"). Moved so,
+// it stays within a millimetre of the edge. ok is false when it still
+// fails: the vertex is off the map.
+func (g *Grid) edgeVertexLonLat(x, y float64) (lon, lat float64, ok bool) {
+	cx, cy := g.Centre(g.Width/2, g.Height/2)
+	for _, f := range []float64{1e-12, 1e-10} {
+		xs, ys := []float64{x + f*(cx-x)}, []float64{y + f*(cy-y)}
+		lons, lats := make([]float64, 1), make([]float64, 1)
+		g.ToLonLat(xs, ys, lons, lats)
+		if !math.IsNaN(lons[0]) && !math.IsNaN(lats[0]) {
+			return lons[0], lats[0], true
+		}
+	}
+	return math.NaN(), math.NaN(), false
+}
+
 // shapeOf converts a GDAL geometry in the grid CRS to a Shape.
 func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 	b, err := geom.WKB()
@@ -1470,7 +1504,10 @@ func shapeOf(geom *godal.Geometry, g *Grid) (Shape, error) {
 			rr := make(orb.Ring, len(r))
 			for k := range r {
 				if math.IsNaN(lons[k]) {
-					return Shape{}, fmt.Errorf("a vertex (%g, %g) cannot be transformed to WGS84", xs[k], ys[k])
+					var ok bool
+					if lons[k], lats[k], ok = g.edgeVertexLonLat(xs[k], ys[k]); !ok {
+						return Shape{}, offMapVertex(g, xs[k], ys[k])
+					}
 				}
 				rr[k] = orb.Point{lons[k], lats[k]}
 			}

@@ -849,31 +849,84 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 
 // exact returns the distance of block cell i to its nearest site among
 // sites, which hold it: the smallest geodesy.Distance from the cell's
-// centre, measuring the sites in increasing order of chord until a
-// chord's lower bound exceeds the smallest distance so far.
+// centre. It measures the site of the shortest chord first, then only the
+// sites that can be nearer, in increasing order of their ballLower, until
+// a bound exceeds the smallest distance so far. A site is left out at
+// once when its chord, or b times its angle from the cell at the centre
+// (compared as cosines: no inverse cosine per site), exceeds that first
+// distance: on a global grid's far cells all but a few of hundreds of
+// clustered sites.
 func (b *projBracketer) exact(i int, sites []projSite) float64 {
-	px, py, pz := b.ex[i], b.ey[i], b.ez[i]
-	ord := b.sc.order[:0]
-	for q := range sites {
-		dx, dy, dz := px-sites[q].p[0], py-sites[q].p[1], pz-sites[q].p[2]
-		ord = append(ord, projOrder{d: math.Sqrt(dx*dx + dy*dy + dz*dz), q: q})
+	if len(sites) == 0 {
+		return math.Inf(1)
 	}
-	for k := 1; k < len(ord); k++ {
-		for j := k; j > 0 && ord[j].d < ord[j-1].d; j-- {
-			ord[j], ord[j-1] = ord[j-1], ord[j]
+	pc := [3]float64{b.ex[i], b.ey[i], b.ez[i]}
+	ord := b.sc.order[:0]
+	first := 0
+	for q := range sites {
+		ord = append(ord, projOrder{d: dist3(pc, sites[q].p), q: q})
+		if ord[q].d < ord[first].d {
+			first = q
 		}
 	}
 	b.sc.order = ord
 	lat, lon := b.lats[i], b.lons[i]
-	best := math.Inf(1)
-	for _, o := range ord {
-		if l, _ := chordBracket(o.d); l > best {
+	f := &sites[first]
+	best := geodesy.Distance(lat, lon, f.lat, f.lon)
+	// b theta <= best, theta the angle at the centre, holds only where
+	// cos theta >= cos(best / b), less 1e-12 for the cosine's rounding.
+	cosMin := -2.0
+	if t := best / geodesy.SemiMinor; t < math.Pi {
+		cosMin = math.Cos(t) - 1e-12
+	}
+	np := math.Sqrt(pc[0]*pc[0] + pc[1]*pc[1] + pc[2]*pc[2])
+	keep := ord[:0]
+	for k, o := range ord {
+		if k == first {
+			continue
+		}
+		if lo, _ := chordBracket(o.d); lo > best {
+			continue
+		}
+		q := sites[o.q].p
+		if (pc[0]*q[0]+pc[1]*q[1]+pc[2]*q[2])/(np*math.Sqrt(q[0]*q[0]+q[1]*q[1]+q[2]*q[2])) < cosMin {
+			continue
+		}
+		keep = append(keep, projOrder{d: ballLower(pc, q), q: o.q})
+	}
+	for k := 1; k < len(keep); k++ {
+		for j := k; j > 0 && keep[j].d < keep[j-1].d; j-- {
+			keep[j], keep[j-1] = keep[j-1], keep[j]
+		}
+	}
+	for _, o := range keep {
+		if o.d > best {
 			break
 		}
 		s := &sites[o.q]
 		best = min(best, geodesy.Distance(lat, lon, s.lat, s.lon))
 	}
 	return best
+}
+
+// ballLower returns a lower bound on the geodesic distance between ECEF
+// points p and q of the ellipsoid, for exact's cut: the larger of their
+// chord and b theta, theta the angle between them at the centre and b the
+// semi-minor axis. Every point of the ellipsoid lies outside the open ball
+// of radius b round its centre, and the radial projection onto that ball's
+// sphere shortens no path outside it less than to the great-circle arc, of
+// length b theta. The chord alone (chordBracket's lower end) is about 11%
+// short at 10,000 km, where all the sites within that band of a global
+// grid's far cells (300 training points clustered within 10 degrees) were
+// measured: a Mollweide grid of 50 km cells took 27 s in the null's pass,
+// against 0.33 s on the latitude-longitude grid of the same cells.
+// Widened by chordBracket's margin.
+func ballLower(p, q [3]float64) float64 {
+	d := dist3(p, q)
+	cx, cy, cz := p[1]*q[2]-p[2]*q[1], p[2]*q[0]-p[0]*q[2], p[0]*q[1]-p[1]*q[0]
+	arc := geodesy.SemiMinor * math.Atan2(math.Sqrt(cx*cx+cy*cy+cz*cz), p[0]*q[0]+p[1]*q[1]+p[2]*q[2])
+	l := max(d, arc)
+	return max(l-(1e-3+1e-9*l), 0)
 }
 
 // anchored brackets the cells of the block in global tile (tr, tc) (rows
