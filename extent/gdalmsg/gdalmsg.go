@@ -42,6 +42,31 @@ func (m Message) String() string {
 	return "library " + kind + ": " + Cause(m.Text)
 }
 
+// OffDomain is Cause's wording of PROJ's message for a point off the map
+// of its CRS.
+const OffDomain = "PROJ could not transform a point lying off the map of its CRS (as the cells at the corners of a world map lie off the Earth); such a point has no longitude and latitude"
+
+// Lines returns the run log's lines for msgs: one per distinct line, in
+// the order each first came, with how many times it came when more than
+// once (PROJ raises one message per point it cannot transform).
+func Lines(msgs []Message) []string {
+	var order []string
+	count := map[string]int{}
+	for _, m := range msgs {
+		l := m.String()
+		if count[l] == 0 {
+			order = append(order, l)
+		}
+		count[l]++
+	}
+	for i, l := range order {
+		if n := count[l]; n > 1 {
+			order[i] = fmt.Sprintf("%s (%d times)", l, n)
+		}
+	}
+	return order
+}
+
 // maxKept bounds the messages held between two Drain calls; later ones
 // are counted only.
 const maxKept = 200
@@ -164,7 +189,15 @@ var (
 	cplXML      = regexp.MustCompile(`^(?:Parse error on line (\d+), |Line (\d+): )((?:reached EOF|Didn't find|Found invalid|Unexpected|Missing).*)$`)
 	projCode    = regexp.MustCompile(`\bError \d+ \([^)]*\):\s*`)
 	noOperation = regexp.MustCompile(`^Cannot find coordinate operations from .*$`)
-	gpkgVersion = regexp.MustCompile(`^This version of GeoPackage (?:user_version|application_id)=\S+ \((\d+), (v[0-9.]+)\) on .* may only be partially supported$`)
+	// offDomain is PROJ's message for a point it cannot transform
+	// because it lies off the map of its CRS (a world map's corners lie
+	// off the Earth): one per point, each logged.
+	offDomain = regexp.MustCompile(`(?i)^.*point outside of projection domain.*$`)
+	// offDomainStop is GDAL's line when it stops reporting PROJ's error
+	// 2050 (PROJ_ERR_COORD_TRANSFM_OUTSIDE_PROJECTION_DOMAIN) for one
+	// transformation.
+	offDomainStop = regexp.MustCompile(`(?i)^.*Reprojection failed, err = 2050, further errors will be suppressed.*$`)
+	gpkgVersion   = regexp.MustCompile(`^This version of GeoPackage (?:user_version|application_id)=\S+ \((\d+), (v[0-9.]+)\) on .* may only be partially supported$`)
 )
 
 // libtiff's and GDAL's words for a TIFF whose header is damaged (each
@@ -292,6 +325,8 @@ var (
 	lastRewordings = []rewording{
 		{projCode, ""},
 		{noOperation, "PROJ knows no transformation between the two CRSs"},
+		{offDomain, OffDomain},
+		{offDomainStop, OffDomain + "; no more of them are reported for this transformation"},
 		{gpkgVersion, "its GeoPackage version $2 ($1) is later than the ones GDAL reads in full"},
 	}
 )

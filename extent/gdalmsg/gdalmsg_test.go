@@ -94,6 +94,10 @@ func TestCause(t *testing.T) {
 		// Copied from GDAL 3.6.2's output on a GeoJSON ecoregion layer
 		// whose second unit's ring was made [[1,2]] (GEOS's words).
 		{"IllegalArgumentException: point array must contain 0 or >1 elements", "a ring or line of it has a single point"},
+		// Copied from run logs of GDAL 3.6.2 / PROJ 9.1 on Mollweide and
+		// EASE-Grid 2.0 world grids, whose corner cells lie off the Earth.
+		{"Point outside of projection domain", OffDomain},
+		{"Reprojection failed, err = 2050, further errors will be suppressed on the transform object", OffDomain + "; no more of them are reported for this transformation"},
 		{strings.Repeat("x", 1000), strings.Repeat("x", maxCause) + "..."},
 	} {
 		if got := Cause(c.in); got != c.want {
@@ -143,6 +147,29 @@ func TestIsOutOfMemory(t *testing.T) {
 	} {
 		if got := IsOutOfMemory(tc.text); got != tc.want {
 			t.Errorf("IsOutOfMemory(%q) = %v, want %v", tc.text, got, tc.want)
+		}
+	}
+}
+
+// TestLines: the run log gets one line per distinct message, in the order
+// each first came, with a count when it came more than once (a world map
+// in Mollweide logged PROJ's message for a point off the map 60 times, one
+// line each).
+func TestLines(t *testing.T) {
+	msgs := []Message{
+		{Level: Failure, Text: "Point outside of projection domain"},
+		{Level: Warning, Text: "something else"},
+		{Level: Failure, Text: "Point outside of projection domain"},
+		{Level: Failure, Text: "Point outside of projection domain"},
+	}
+	got := Lines(msgs)
+	want := []string{"library error: " + OffDomain + " (3 times)", "library warning: something else"}
+	if len(got) != len(want) {
+		t.Fatalf("Lines = %q, want %q", got, want)
+	}
+	for i := range want {
+		if got[i] != want[i] {
+			t.Errorf("line %d: %q, want %q", i, got[i], want[i])
 		}
 	}
 }

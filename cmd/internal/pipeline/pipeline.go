@@ -476,11 +476,11 @@ func WriteFailedIn(out, stage string, err error) error {
 
 // libraryMessages moves the messages GDAL and its libraries raised outside
 // any call that reported them as errors into the run log (not the
-// terminal), one line each.
+// terminal), one line per distinct message with how many times it came.
 func (s *Study) libraryMessages() {
 	msgs, dropped := gdalmsg.Drain()
-	for _, m := range msgs {
-		s.log.WriteString(m.String() + "\n")
+	for _, l := range gdalmsg.Lines(msgs) {
+		s.log.WriteString(l + "\n")
 	}
 	if dropped > 0 {
 		fmt.Fprintf(s.log, "library messages: %d more not kept\n", dropped)
