@@ -629,7 +629,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences all outside", f.withOcc(f.file("outside.csv", "lon,lat,role\n100,10,train\n101,11,test\n")), 2, []string{"outside.csv", "outside the raster"}, "", ""},
 		// Both in range, in each other's columns: the range check cannot
 		// tell, the grid (10..22 E, 40..48 N) can.
-		{"occurrences swapped within range", f.withOcc(f.file("swapped2.csv", "lon,lat,role\n43,13.5,train\n44,14,test\n")), 2, []string{"swapped2.csv", "every point lies outside the raster", "with longitude and latitude swapped, 2 of the 2 points would lie on it"}, "", ""},
+		{"occurrences swapped within range", f.withOcc(f.file("swapped2.csv", "lon,lat,role\n43,13.5,train\n44,14,test\n")), 2, []string{"swapped2.csv", "every point lies outside the raster", "with longitude and latitude swapped, 2 of the 2 points would lie on cells with data"}, "", ""},
 		{"occurrences degrees with a projected CRS", f.withOcc(f.file("degrees.csv", far.String()), "--occurrences-crs", "EPSG:3035"), 2, []string{"degrees.csv", "look like degrees", "EPSG:3035"}, "", ""},
 		{"occurrences test points on no data", f.withOcc(f.file("nodata.csv", "lon,lat,role\n13.5,43,train\n21.5,40.5,test\n")), 2, []string{"nodata.csv", "no test point", "model.tif"}, "", ""},
 

@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -74,16 +75,19 @@ func TestSwappedOnGrid(t *testing.T) {
 	}
 	defer g.Close()
 	pts := []report.Point{{Lon: -42.5, Lat: 22.3}, {Lon: -40.01, Lat: 25.99}, {Lon: 22.3, Lat: -42.5}, {Lon: -50, Lat: 22}}
-	if n := swappedOnGrid(pts, g); n != 2 {
-		t.Errorf("swapped points on the grid: %d, want 2", n)
+	// By hand: 22.3 E is column (22.3-20)/0.05 = 46, 42.5 S row 50;
+	// 25.99 E column 119, 40.01 S row 0.
+	if got, want := swappedOnGrid(pts, g), []int{50*120 + 46, 119, -1, -1}; !slices.Equal(got, want) {
+		t.Errorf("swapped points' cells: %v, want %v", got, want)
 	}
 	e, err := extent.NewGrid(200, 100, [6]float64{170, 0.1, 0, -10, 0, -0.1}, "EPSG:4326")
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer e.Close()
-	if n := swappedOnGrid([]report.Point{{Lon: -15, Lat: -175}, {Lon: -15, Lat: 185}}, e); n != 2 {
-		t.Errorf("across 180: %d, want 2", n)
+	// By hand: 185 E is column 150 both ways, 15 S row 50.
+	if got, want := swappedOnGrid([]report.Point{{Lon: -15, Lat: -175}, {Lon: -15, Lat: 185}}, e), []int{50*200 + 150, 50*200 + 150}; !slices.Equal(got, want) {
+		t.Errorf("across 180: %v, want %v", got, want)
 	}
 }
 

@@ -916,35 +916,72 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 			msg += fmt.Sprintf(". The coordinates look like degrees but --occurrences-crs is %s: if they are longitude/latitude, leave --occurrences-crs out", o.OccurrencesCRS)
 		} else if o.OccurrencesCRS == "" && !s.grid.Geographic {
 			msg += "; the raster is projected: if the table holds projected coordinates, give their CRS with --occurrences-crs (e.g. EPSG:3035)"
-		} else if n := swappedOnGrid(s.points, s.grid); s.grid.Geographic && 2*n >= len(s.points) && n > 0 {
+		} else if n := swappedOnData(r, s.points, s.grid); s.grid.Geographic && 2*n >= len(s.points) && n > 0 {
 			// Longitudes and latitudes both in range, in each other's
 			// columns: the range check cannot see it.
-			msg += fmt.Sprintf("; with longitude and latitude swapped, %d of the %d points would lie on it: the table's longitude and latitude columns probably hold each other's values (rename or swap them)", n, len(s.points))
+			msg += fmt.Sprintf("; with longitude and latitude swapped, %d of the %d points would lie on cells with data: the table's longitude and latitude columns probably hold each other's values (rename or swap them)", n, len(s.points))
 		} else {
-			msg += "; check that the points and the raster cover the same area"
+			msg += "; check that the points and the raster cover the same area" + pointsBeside(s.points, s.grid)
 		}
 	}
 	return errors.New(msg)
 }
 
-// swappedOnGrid counts the points that would lie on the latitude-longitude
-// grid g with their longitude and latitude swapped (longitudes taken
-// modulo 360 degrees).
-func swappedOnGrid(pts []report.Point, g *extent.Grid) int {
-	b := g.Bounds()
-	west, south, east, north := b[0], b[1], b[2], b[3]
-	n := 0
-	for _, p := range pts {
+// swappedOnGrid returns the cells (row*width+col) of the latitude-longitude
+// grid g that the points would lie in with their longitude and latitude
+// swapped (longitudes taken modulo 360 degrees), -1 for a point that
+// would still miss g.
+func swappedOnGrid(pts []report.Point, g *extent.Grid) []int {
+	west := g.Bounds()[0]
+	cells := make([]int, len(pts))
+	for i, p := range pts {
 		lon, lat := p.Lat, p.Lon
-		if lat < south || lat >= north {
-			continue
-		}
 		lon = west + math.Mod(math.Mod(lon-west, 360)+360, 360)
-		if lon < east {
+		cells[i] = -1
+		if col, row, ok := g.CellOf(lon, lat); ok {
+			cells[i] = row*g.Width + col
+		}
+	}
+	return cells
+}
+
+// swappedOnData counts the points that would lie on cells with data of r
+// (on grid g) with their longitude and latitude swapped. Landing on the
+// grid alone is no sign of swapped columns: points south of a grid that
+// stops at 60 S (an Antarctic species on a land-only layout) swap onto
+// it in numbers when their longitudes lie within +-90, but mostly onto
+// the ocean's no data, where real occurrences swapped back would not be.
+// A read error counts none (the message then gives no hint).
+func swappedOnData(r *pass.Raster, pts []report.Point, g *extent.Grid) int {
+	_, valid, err := r.Sample(g, swappedOnGrid(pts, g))
+	if err != nil {
+		return 0
+	}
+	n := 0
+	for _, ok := range valid {
+		if ok {
 			n++
 		}
 	}
 	return n
+}
+
+// pointsBeside returns, on a latitude-longitude grid, the ranges of the
+// points' latitudes and longitudes and of the grid's, for a message about
+// points that all miss it ("" on a projected grid, whose edges are not in
+// degrees).
+func pointsBeside(pts []report.Point, g *extent.Grid) string {
+	if !g.Geographic || len(pts) == 0 {
+		return ""
+	}
+	w, e := math.Inf(1), math.Inf(-1)
+	s, n := w, e
+	for _, p := range pts {
+		w, e = min(w, p.Lon), max(e, p.Lon)
+		s, n = min(s, p.Lat), max(n, p.Lat)
+	}
+	b := g.Bounds()
+	return fmt.Sprintf(" (the points lie at latitudes %g to %g, longitudes %g to %g; the raster covers latitudes %g to %g, longitudes %g to %g)", s, n, w, e, round6(b[1]), round6(b[3]), round6(b[0]), round6(b[2]))
 }
 
 // explainCells is the most cells noTestPoint reads to tell a raster of
