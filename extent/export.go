@@ -104,14 +104,17 @@ func (g *Grid) GeoTIFFHoldsCRS() bool {
 }
 
 // WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member
-// (1 inside, 0 outside; band description = member id), deflate-compressed.
+// (1 inside, 0 outside; band description = member id), deflate-compressed,
+// each band in its own tiles: written band by band into pixel-interleaved
+// tiles, each band recompressed those of the bands before it (minutes on a
+// global 2.5 arc-minute grid).
 // A duplicate holds no runs of its own (setStatus empties them) but has the
 // cells of the member it equals, so its band is that member's.
 func (f *Family) WriteMembershipTIFF(path string) error {
 	Register()
 	g := f.Grid
 	ds, err := godal.Create(godal.GTiff, path, len(f.Members), godal.Byte, g.Width, g.Height,
-		godal.CreationOption("COMPRESS=DEFLATE", "TILED=YES"))
+		godal.CreationOption("COMPRESS=DEFLATE", "TILED=YES", "INTERLEAVE=BAND"))
 	if err != nil {
 		return fmt.Errorf("extent: create %s: %w", path, err)
 	}

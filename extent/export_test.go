@@ -59,3 +59,27 @@ func TestMembershipTIFFDuplicateBand(t *testing.T) {
 		}
 	}
 }
+
+// TestMembershipTIFFBandInterleaved: extents.tif stores each band in its
+// own tiles (INTERLEAVE=BAND). Written band by band into GDAL's default
+// pixel-interleaved tiles, every band decompressed and recompressed the
+// tiles of the bands before it: 'areasweep extents --membership-tif' with
+// 11 members on a global 5 arc-minute grid took 10.3 s, on a 2.5
+// arc-minute grid more than 15 minutes (killed); band-interleaved, 2.3 s
+// and 5.7 s, the same bands.
+func TestMembershipTIFFBandInterleaved(t *testing.T) {
+	dir := t.TempDir()
+	f := sameAndOffFamily(t, dir)
+	path := filepath.Join(dir, "extents.tif")
+	if err := f.WriteMembershipTIFF(path); err != nil {
+		t.Fatal(err)
+	}
+	ds, err := godal.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ds.Close()
+	if got := ds.Metadata("INTERLEAVE", godal.Domain("IMAGE_STRUCTURE")); got != "BAND" {
+		t.Errorf("extents.tif INTERLEAVE = %q, want BAND", got)
+	}
+}
