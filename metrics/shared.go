@@ -36,6 +36,13 @@ func (s *Shared) Begin(dst []*Accumulator) {
 	a := s.acc
 	if a.cells != 0 || a.skipped != 0 {
 		a.Reset() // not drained
+	} else {
+		// A Begin whose targets got no cell leaves its grid behind (Drain
+		// returns early): an empty target would take that grid, which
+		// depends on the blocks this worker saw before, instead of the
+		// grid of its own cells (results.json's Boyce window areas
+		// differed between runs of one study).
+		a.clearGrid()
 	}
 	s.dst = append(s.dst[:0], dst...)
 	var finest *Accumulator
