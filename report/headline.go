@@ -29,11 +29,18 @@ func (s *Sensitivity) findDecomposition(key string) *Decomposition {
 	return nil
 }
 
-// areaRange formats "from A to B km²", in thousands when B >= 10,000,
+// areaRange formats "from A to B km²", in thousands when B >= 10,000 and
+// in millions when B >= 10 million,
 // each area rounded to three significant digits as fmtArea rounds it, so
 // that an area reads the same here and in the extent lists and tables
 // (3,251,635 km² is "3,250 thousand" here and "3,250,000" there).
 func areaRange(lo, hi float64) string {
+	if hi >= 1e7 {
+		// Global extents: "from 117 to 128 million km²", not "from
+		// 117,000 to 128,000 thousand km²".
+		millions := func(v float64) string { return trimFloat(roundSig(v, 3)/1e6, 3) }
+		return fmt.Sprintf("from %s to %s million km²", millions(lo), millions(hi))
+	}
 	if hi >= 1e4 {
 		thousands := func(v float64) string {
 			t := roundSig(v, 3) / 1000
