@@ -645,9 +645,9 @@ func (g *Grid) MinCellSideM() float64 {
 			if 90-math.Abs(pole) < 1e-9 {
 				// A cell on a pole (to the rounding of the geotransform:
 				// 90 - 2160/12 is not -90) has no poleward side (measured,
-				// the rounding left 2e-12 m, and the hull's edges were cut
-				// every 2e-12 m until memory ran out): its shortest
-				// east-west side is along its other edge.
+				// the rounding left 2e-12 m; the hull's edges, cut at this
+				// side then, were cut every 2e-12 m until memory ran out):
+				// its shortest east-west side is along its other edge.
 				pole, other = other, pole
 			}
 			ys[0], ys[1], ys[2] = pole, pole, other
