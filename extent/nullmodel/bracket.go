@@ -139,6 +139,18 @@ var (
 // locus of a site is about 20 000 km away.
 const maxTaylorDist = 6e6
 
+// maxFarDist is the largest distance (m) at which the far form of the
+// Taylor bracket is used (from maxTaylorDist on): our choice, 970 km short
+// of pi b = 19 970 km, below which no point of the ellipsoid lies on a
+// site's cut locus. By Klingenberg's lemma (W. Klingenberg, Ann. of Math.
+// 69:654-666, 1959; do Carmo, Riemannian Geometry, 1992, ch. 13, prop.
+// 2.12) the injectivity radius of a closed surface whose Gaussian
+// curvature is at most 1/b^2 is at least the smaller of pi b and half
+// its shortest closed geodesic, a meridian (40 008 km) on WGS84; so the
+// distance to a site is smooth, and the Hessian comparison holds, at every
+// point within it but the site.
+const maxFarDist = 19e6
+
 // lonLat describes a north-up latitude-longitude grid: centre of cell
 // (c, r) at (west + (c+0.5) dlon, north + (r+0.5) dlat) degrees, as
 // extent.Grid.Centre computes it.
@@ -310,8 +322,11 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 //
 // widened by a margin (1 mm + 1e-9 f(a)) for PROJ's 15 nm and the rounding
 // of coordinates, and intersected with [f(a)-t, f(a)+t] widened by the
-// same margin. A site nearer the anchor than twice the anchor's largest t,
-// or within that t of 6000 km, gets only the 1-Lipschitz bound. The
+// same margin. A site nearer the anchor than twice the anchor's largest t
+// gets only the 1-Lipschitz bound; one within that t of 6000 km
+// (maxTaylorDist) or farther, up to maxFarDist, the far form of the
+// bracket (farHessian), whose lower Hessian bound may be negative; one
+// beyond, near the site's antipode, only the 1-Lipschitz bound. The
 // cell's bracket is the minimum over the measured sites of both ends (a
 // site with f(a) - t above the running upper end changes neither).
 //
@@ -472,6 +487,8 @@ type anchorSite struct {
 	margin     float64 // taylorBracket's margin, 1 mm + 1e-9 f0
 	sz, cz     float64
 	taylor     bool
+	far        bool    // the far form of the Taylor bracket (see farHessian)
+	hA, hB     float64 // far: bounds on f'' within the anchor's stencil
 	slat, slon float64
 }
 
@@ -1019,8 +1036,13 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 	f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
 	sz, cz := math.Sincos(az * math.Pi / 180)
 	m := anchorSite{k: k, f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, sz: sz, cz: cz, slat: slat, slon: slon}
-	if st.ok && f0 > 2*st.tmax && f0+st.tmax < maxTaylorDist {
-		m.taylor = true
+	if st.ok && f0 > 2*st.tmax {
+		switch {
+		case f0+st.tmax < maxTaylorDist:
+			m.taylor = true
+		case f0+st.tmax <= maxFarDist:
+			m.hA, m.hB, m.far = farHessian(farCot(f0), f0, st.tmax)
+		}
 	}
 	return m
 }
@@ -1187,6 +1209,53 @@ func hLoFast(r float64) float64 {
 }
 
 func hHiFast(r float64) float64 { return 1 / r }
+
+// farCot returns a lower bound on cot(f0/b) for a distance 0 < f0 < pi b:
+// cos/sin, lowered by 1e-12 of its size and by 1e-12 for the rounding of
+// both (the bracket it serves has a margin of 1 mm; this moves it by
+// under 1e-9 m).
+func farCot(f0 float64) float64 {
+	s, c := math.Sincos(f0 * sqrtKmax)
+	v := c / s
+	return v - math.Abs(v)*1e-12 - 1e-12
+}
+
+// farHessian returns bounds A <= f” <= B along every geodesic of length
+// at most t from an anchor at distance f0 from a site, for the far form
+// of the Taylor bracket (f0 + t from maxTaylorDist to maxFarDist, f0 > 2
+// t), given cx <= cot(f0/b) (farCot); ok is false when t is not in (0, b].
+// Along such a geodesic the distance r to the site stays in [f0 - t, f0 +
+// t] and f” = h(r) (1 - f'^2), with 1 - f'^2 in [0, 1] and h between the
+// comparison bounds (see Bracket), both falling with r:
+//
+//	A = min(0, cot((f0+t)/b)/b),  B = 1/(f0 - t).
+//
+// The lower bound turns negative beyond pi b/2 (the geodesic circles about
+// the site bend back towards it past a quarter of the way round) and
+// falls towards -Inf at pi b, hence maxFarDist. cot((f0+t)/b) is taken
+// from the addition formula (cx cd - 1)/(cx + cd), cd = cot(t/b), which
+// grows with both cx and cd (its derivatives are (cd^2+1) and (cx^2+1)
+// over (cx+cd)^2), with cd >= 1/x - x/3 - x^3/40, x = t/b <= 1 (see
+// hLoFast): a lower bound with two divisions and no tangent, lowered like
+// farCot for its rounding. The bracket is then
+//
+//	f(p) in f(a) + t f'(0) + [A, B] t^2/2,
+//
+// widened and intersected as the near form's; it is looser than the near
+// form (no use of the range of f'), but at these distances B t^2/2 and
+// |A| t^2/2 are a few hundred metres for the 50 km a super-tile's cell lies
+// from its centre on a 2.5 arc-minute grid, far under the floor bins of a
+// layout whose values reach thousands of kilometres.
+func farHessian(cx, f0, t float64) (a, b float64, ok bool) {
+	x := t * sqrtKmax
+	if !(x > 0 && x <= 1) {
+		return 0, 0, false
+	}
+	cd := 1/x - x/3 - x*x*x/40
+	v := (cx*cd - 1) / (cx + cd)
+	v -= math.Abs(v)*1e-12 + 1e-12
+	return min(0, v*sqrtKmax), 1 / (f0 - t), true
+}
 
 // kLo1 and kLo3 are the coefficients of hLoFast: 1/(3 b^2) and 1/(40 b^4).
 var (
@@ -1373,7 +1442,7 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	// never a single value (only cells measured with Distance are).
 	margin := m.margin
 	lo, hi = max(0, m.f0-t-margin), m.f0+t+margin
-	if !m.taylor {
+	if !m.taylor && !m.far {
 		return lo, hi
 	}
 	// f'(0): the gradient points away from the site, opposite the azimuth
@@ -1383,6 +1452,16 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 		c0 = 1
 	} else if c0 < -1 {
 		c0 = -1
+	}
+	if m.far {
+		base, half := m.f0+t*c0, t*t/2
+		if l := base + m.hA*half - margin; l > lo {
+			lo = l
+		}
+		if h := base + m.hB*half + margin; h < hi {
+			hi = h
+		}
+		return lo, hi
 	}
 	// Hessian bounds for this cell's t without a division: with x = t/f0
 	// <= 1/2 (f0 > 2 t for a Taylor site), 1/(f0+t) >= (1-x)/f0 and
@@ -1436,7 +1515,7 @@ func taylorRow(m *anchorSite, ts, sa, ca, lo, hi []float64) {
 	margin, f0, inv, cz, sz := m.margin, m.f0, m.inv, m.cz, m.sz
 	for x, t := range ts {
 		l, h := max(0, f0-t-margin), f0+t+margin
-		if !m.taylor {
+		if !m.taylor && !m.far {
 			lo[x], hi[x] = l, h
 			continue
 		}
@@ -1446,6 +1525,17 @@ func taylorRow(m *anchorSite, ts, sa, ca, lo, hi []float64) {
 			c0 = 1
 		} else if c0 < -1 {
 			c0 = -1
+		}
+		if m.far {
+			base, half := f0+t*c0, t*t/2
+			if v := base + m.hA*half - margin; v > l {
+				l = v
+			}
+			if v := base + m.hB*half + margin; v < h {
+				h = v
+			}
+			lo[x], hi[x] = l, h
+			continue
 		}
 		x1 := t * inv
 		ft := f0 + t

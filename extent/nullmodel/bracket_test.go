@@ -63,14 +63,21 @@ func TestBracketContainsDistance(t *testing.T) {
 		w, h             int
 		sw, ss, se, sn   float64
 		sites            int
+		// minFar: the least share of the cells from maxTaylorDist to
+		// maxFarDist from the nearest site that must be bracketed, not
+		// computed exactly (the far form at work).
+		minFar float64
 	}{
-		{"europe-1km", -5, 55, 0.01, 400, 300, -5, 52, -1, 55, 40},
-		{"arctic-coarse", -60, 89.5, 0.5, 240, 60, -60, 70, 60, 89, 12},
-		{"antimeridian", 175, -30, 0.05, 200, 120, 176, -36, 184, -31, 25},
-		{"south-pole", -180, -80, 0.1, 180, 100, -180, -89, -100, -81, 8},
+		{"europe-1km", -5, 55, 0.01, 400, 300, -5, 52, -1, 55, 40, 0},
+		{"arctic-coarse", -60, 89.5, 0.5, 240, 60, -60, 70, 60, 89, 12, 0},
+		{"antimeridian", 175, -30, 0.05, 200, 120, 176, -36, 184, -31, 25, 0},
+		{"south-pole", -180, -80, 0.1, 180, 100, -180, -89, -100, -81, 8, 0},
 		// Dense training points: many super-tiles have more candidates
 		// than the anchors measure (maxCandidates).
-		{"dense-1km", -5, 55, 0.01, 300, 200, -4.6, 53.3, -2.4, 54.9, 4000},
+		{"dense-1km", -5, 55, 0.01, 300, 200, -4.6, 53.3, -2.4, 54.9, 4000, 0},
+		// A small range on a whole-world grid: most cells lie beyond
+		// maxTaylorDist, up to the sites' antipodes.
+		{"world-small-range", -180, 90, 0.5, 720, 360, 10, 45, 10.2, 45.15, 10, 0.5},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -104,6 +111,18 @@ func TestBracketContainsDistance(t *testing.T) {
 					exact := checkBrackets(t, fmt.Sprintf("blocks %v masked %v", bs, masked), want, lo, hi, mask, layout)
 					if !masked {
 						t.Logf("blocks %v: %d of %d cells exact (%.1f%%)", bs, exact, len(want), 100*float64(exact)/float64(len(want)))
+						far, farOpen := 0, 0
+						for i, d := range want {
+							if d >= 6e6 && d <= 19e6 { // maxTaylorDist, maxFarDist
+								far++
+								if lo[i] < hi[i] {
+									farOpen++
+								}
+							}
+						}
+						if far > 0 && float64(farOpen) < tc.minFar*float64(far) {
+							t.Fatalf("blocks %v: %d of %d cells beyond maxTaylorDist bracketed, want at least %.0f%%", bs, farOpen, far, 100*tc.minFar)
+						}
 						key := append(append([]float64{}, lo...), hi...)
 						if ref == nil {
 							ref = key
@@ -343,12 +362,41 @@ func BenchmarkFieldBracket(b *testing.B) {
 // bracket's margin).
 func TestHessianBounds(t *testing.T) {
 	const eps = 1e-12
+	// The far form's bounds, to maxFarDist: farCot below cot(f0/b) and
+	// farHessian's A below cot((f0+t)/b)/b and 0, both close to them (the
+	// tolerances below), and B = 1/(f0 - t).
+	for f0 := 1e5; f0 <= maxFarDist; f0 += 1e4 {
+		cot := 1 / math.Tan(sqrtKmax*f0)
+		if c := farCot(f0); c > cot || c < cot-1e-9*math.Abs(cot)-1e-9 {
+			t.Fatalf("f0 = %v m: farCot %v, cot(f0/b) %v", f0, c, cot)
+		}
+		for _, step := range []float64{1, 1e3, 3e4, 2e5, 2e6} {
+			if f0+step > maxFarDist || f0 <= 2*step {
+				continue
+			}
+			want := sqrtKmax / math.Tan(sqrtKmax*(f0+step))
+			a, b, ok := farHessian(farCot(f0), f0, step)
+			// Our tolerance for the series of cot(t/b) (its bound is lower by
+			// about (t/b)^3/360, less after the addition formula).
+			x := step * sqrtKmax
+			if !ok || a > 0 || a > want || a < min(0, want)-(1e-9+x*x*x/100)*(math.Abs(want)+sqrtKmax) || b != 1/(f0-step) {
+				t.Fatalf("f0 = %v m, t = %v m: farHessian %v %v %v, cot((f0+t)/b)/b %v", f0, step, a, b, ok, want)
+			}
+		}
+	}
+	if _, _, ok := farHessian(0, 1e7, 0); ok {
+		t.Fatal("farHessian took t = 0")
+	}
+	if _, _, ok := farHessian(0, 1.8e7, 1.01/sqrtKmax); ok {
+		t.Fatal("farHessian took t > b")
+	}
 	for r := 1.0; r < 6e6; r *= 1.01 {
 		lo := sqrtKmax / math.Tan(sqrtKmax*r)
 		hi := sqrtKmin / math.Tan(sqrtKmin*r)
 		if !(hLoFast(r) <= lo*(1+eps) && lo <= hi*(1+eps) && hi <= hHiFast(r)*(1+eps)) {
 			t.Fatalf("r = %v m: hLoFast %v, lower bound %v, upper bound %v, hHiFast %v", r, hLoFast(r), lo, hi, hHiFast(r))
 		}
+
 		for _, x := range []float64{0, 0.1, 0.3, 0.5} {
 			f0, step := r, x*r
 			if f0+step >= 6e6 {
@@ -359,6 +407,48 @@ func TestHessianBounds(t *testing.T) {
 			if h1 > hLoFast(f0+step)*(1+eps) || h2*(1+eps) < hHiFast(f0-step) {
 				t.Fatalf("f0 = %v m, t = %v m: division-free bounds %v, %v against %v, %v", f0, step, h1, h2, hLoFast(f0+step), hHiFast(f0-step))
 			}
+		}
+	}
+}
+
+// TestFarTaylorBracket checks the far form of the Taylor bracket
+// (farHessian) against PROJ's geodesics (Karney 2013, through
+// geodesy.Inverse and geodesy.Distance): for random anchors and sites
+// from maxTaylorDist to maxFarDist apart (anywhere on the ellipsoid,
+// across the poles and the antimeridian) and random cells up to 150 km
+// from the anchor, the bracket from the anchor's measurement holds the
+// cell's distance to the site, and within 60 km of the anchor it is under
+// 1.5 km wide (the far form is of use; our bound, from (B - A) t^2/2).
+func TestFarTaylorBracket(t *testing.T) {
+	r := rand.New(rand.NewPCG(17, 18))
+	tested := 0
+	for tested < 20000 {
+		alat, alon := 180*r.Float64()-90, 360*r.Float64()-180
+		slat, slon := 180*r.Float64()-90, 360*r.Float64()-180
+		f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
+		tmax := 1e3 + r.Float64()*149e3
+		if !(f0 > 2*tmax && f0+tmax >= maxTaylorDist && f0+tmax <= maxFarDist) {
+			continue
+		}
+		tested++
+		m := anchorSite{f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, far: true}
+		m.sz, m.cz = math.Sincos(az * math.Pi / 180)
+		m.hA, m.hB, _ = farHessian(farCot(f0), f0, tmax)
+		// A cell within tmax of the anchor, and the geodesic to it.
+		plat := math.Max(-90, math.Min(90, alat+(2*r.Float64()-1)*tmax/111e3))
+		plon := alon + (2*r.Float64()-1)*tmax/111e3/math.Max(0.05, math.Cos(alat*math.Pi/180))
+		tc, azc, _ := geodesy.Inverse(alat, alon, plat, plon)
+		if tc > tmax {
+			continue
+		}
+		su, cu := math.Sincos(azc * math.Pi / 180)
+		lo, hi := taylorBracket(&m, tc, su, cu)
+		d := geodesy.Distance(plat, plon, slat, slon)
+		if !(lo <= d && d <= hi) {
+			t.Fatalf("anchor (%v, %v), site (%v, %v) at %.3f km, cell (%v, %v) %.3f km away: distance %.6f outside [%.6f, %.6f]", alat, alon, slat, slon, f0/1e3, plat, plon, tc/1e3, d, lo, hi)
+		}
+		if tmax <= 60e3 && hi-lo > 1500 {
+			t.Fatalf("site at %.3f km, cell %.3f km away (t <= %.0f m): bracket %.1f m wide", f0/1e3, tc/1e3, tmax, hi-lo)
 		}
 	}
 }
@@ -457,7 +547,7 @@ func bracketBlocks(f *Field, w, h int, layout Binner, lo, hi []float64) int {
 
 // TestTaylorRow checks that taylorRow, the loop form of taylorBracket used
 // on a super-tile's rows, gives taylorBracket's brackets bit for bit, on
-// random sites and cells, Taylor and 1-Lipschitz alike, with the stencil
+// random sites and cells, Taylor (near and far forms) and 1-Lipschitz alike, with the stencil
 // lengths and azimuths of a real row.
 func TestTaylorRow(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
@@ -465,6 +555,13 @@ func TestTaylorRow(t *testing.T) {
 		f0 := math.Exp(r.Float64()*math.Log(6e6/10)) * 10
 		az := (r.Float64()*2 - 1) * math.Pi
 		m := anchorSite{f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, taylor: trial%5 != 0}
+		if trial%5 == 1 {
+			// The far form.
+			m.f0 = maxTaylorDist + r.Float64()*(maxFarDist-maxTaylorDist)
+			m.taylor, m.far = false, true
+			m.hA, m.hB, _ = farHessian(farCot(m.f0), m.f0, 1e5)
+		}
+		f0 = m.f0
 		m.sz, m.cz = math.Sincos(az)
 		n := 1 + r.IntN(SuperTile)
 		ts, sa, ca := make([]float64, n), make([]float64, n), make([]float64, n)

@@ -79,6 +79,9 @@ func (sc *projScratch) chordSites(ix *geodesy.Index, p [3]float64) []projSite {
 type projAnchor struct {
 	f0, sz, cz float64
 	site       projSite
+	// cx: farCot(f0) when f0 + the tile's largest th reaches
+	// maxTaylorDist (the far form of the bracket may be used), else NaN.
+	cx float64
 }
 
 // projOrder is a candidate site of a cell computed exactly, with its
@@ -241,8 +244,13 @@ func validLonLat(lat, lon float64) bool {
 //
 // widened by 1 mm + 1e-9 f (PROJ's 15 nm and the rounding of the
 // coordinates and azimuths) and intersected with the 1-Lipschitz bracket
-// [f - th, f + th] widened the same; a site with f <= 2 th or f + th >=
-// 6000 km (see maxTaylorDist) gets only the latter. The cell's bracket is
+// [f - th, f + th] widened the same; a site with f <= 2 th gets only the
+// latter, and one with f + th >= 6000 km (see maxTaylorDist) the far form
+// of the bracket (farHessian at the cell's th, when f + th <= maxFarDist,
+// else only the 1-Lipschitz bracket):
+//
+//	f_k(p) in [f + tc - e1 + A th^2/2, f + tc + e1 + B th^2/2],  A <= 0 <= B. The cell's bracket is
+//
 // the minimum over the sites of both ends, intersected with its chord
 // bracket, kept under the same two conditions. Sites: those the index
 // lists within d1(a) + S of a, S = 2 T + 2 (1 mm + 1e-9 d1(a)) + 1 m, T the
@@ -1028,6 +1036,15 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 			an[j], an[j-1] = an[j-1], an[j]
 		}
 	}
+	for q := range an {
+		// Whether a cell takes the far form depends on its th alone (<=
+		// tmax), not on which cells are pending.
+		if m := &an[q]; m.f0+tmax >= maxTaylorDist {
+			m.cx = farCot(m.f0)
+		} else {
+			m.cx = math.NaN()
+		}
+	}
 	sc.anchor = an
 	sc.asites = sc.asites[:0]
 	for _, m := range an {
@@ -1119,6 +1136,15 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) {
 	lo, hi = max(0, m.f0-th-margin), m.f0+th+margin
 	if !(m.f0 > 2*th && m.f0+th < maxTaylorDist) {
+		if m.f0 > 2*th && m.f0+th <= maxFarDist {
+			// The far form (see farHessian): t f'(0) in [tc - e1, tc +
+			// e1], f'' in [A, B] with A <= 0 <= B, t <= th.
+			if a, b, ok := farHessian(m.cx, m.f0, th); ok {
+				half := th * th / 2
+				lo = max(lo, m.f0+(tc-e1)+a*half-margin)
+				hi = min(hi, m.f0+(tc+e1)+b*half+margin)
+			}
+		}
 		return lo, hi
 	}
 	a1, a2 := tc-e1, tc+e1

@@ -111,6 +111,10 @@ func TestBracketProjected(t *testing.T) {
 		// (the chord tiles') come from the interpolated positions.
 		{"laea-dense-2km", laeaGrid(-150e3, 160e3, 2000, 52, 10), 150, 160, 9, 51.5, 11, 52.5, 3000, 0.5, 0.1},
 		{"polar-25km", polarGrid(-2.0e6, 2.0e6, 25000, -45), 160, 160, -180, 78, 180, 88, 15, 0.3, 2},
+		// Grids far from their sites (about 7,000 and 17,000 km): the far
+		// form of the Taylor bracket (farHessian).
+		{"laea-far-asia-2km", laeaGrid(-150e3, 160e3, 2000, 20, 100), 150, 160, 8, 44, 12, 46, 10, 0.8, 0.1},
+		{"laea-far-pacific-2km", laeaGrid(-150e3, 160e3, 2000, -20, -170), 150, 160, 8, 44, 12, 46, 10, 0.8, 0.2},
 		// Cells of 1000 km on a map of nearly the whole sphere: tiles
 		// wider than maxChord.
 		{"polar-1000km", polarGrid(-12e6, 12e6, 1000e3, 0), 24, 24, -180, -60, 180, 80, 20, 0, 2},
