@@ -346,7 +346,9 @@ func (ll *lonLat) stencil(k, pr int) *stencil {
 // which is Index.Nearest's value bit for bit.
 //
 // A super-tile with more than maxCandidates candidates (dense training
-// points) takes the chord brackets alone, and the cells they leave (all
+// points) first keeps those that can be nearest to one of its cells
+// (farPrune); when at most maxCandidates remain it goes on as above.
+// Otherwise it takes the chord brackets alone, and the cells they leave (all
 // of them when the chords are skipped) are computed exactly: from the
 // few candidates that can be nearest to one of its cells (denseSites),
 // measured at its centre, as above (one geodesic per cell, about), or,
@@ -389,6 +391,9 @@ func (f *Field) bracketLonLat(x0, y0, w, h int, need []uint64, bins Binner, lo, 
 		sc.pending = make([]bool, n)
 	}
 	clear(sc.pending[:n])
+	if len(sc.fans)*f.ix.Len() > fanLimit {
+		clear(sc.fans)
+	}
 	if cap(sc.clo) < n {
 		sc.clo, sc.chi = make([]float64, n), make([]float64, n)
 	}
@@ -573,6 +578,11 @@ func (b *bracketer) super(sr, scol int) {
 		}
 		if b.cands, hit = b.cover.Within(&pt, d1+2*rho, b.cands[:0]); !hit {
 			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+		}
+		if len(b.cands) > maxCandidates {
+			// Far from a dense cluster: the few candidates that can be
+			// nearest somewhere in the super-tile, taken as a sparse one's.
+			b.farPrune(clat, clon, big, rho)
 		}
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
 		if len(b.cands) > maxCandidates {
@@ -1178,6 +1188,165 @@ func (b *bracketer) denseSites(clat, clon float64, st *stencil, rho float64) boo
 		b.measured = append(b.measured, m)
 	}
 	sortSites(b.measured)
+	return true
+}
+
+// farPair is the geodesic from one site to another: its length d and the
+// sine and cosine of its azimuth at the first.
+type farPair struct {
+	d, sz, cz float64
+}
+
+// fanLimit bounds the geodesics farPrune keeps (entries of scratch.fans,
+// 24 bytes each): our choice, 24 MiB per worker.
+const fanLimit = 1 << 20
+
+// fan returns the slice of geodesics from site a to the others (pair
+// fills its entries), made once per Bracket call or kept from an earlier
+// one.
+func (b *bracketer) fan(a int) []farPair {
+	if fan, ok := b.sc.fans[a]; ok {
+		return fan
+	}
+	fan := make([]farPair, b.f.ix.Len())
+	for k := range fan {
+		fan[k].d = math.NaN()
+	}
+	if b.sc.fans == nil {
+		b.sc.fans = map[int][]farPair{}
+	}
+	b.sc.fans[a] = fan
+	return fan
+}
+
+// pair returns the geodesic from the site whose fan is fan, at (alat,
+// alon), to site k (geodesy.Inverse), computed once.
+func (b *bracketer) pair(fan []farPair, alat, alon float64, k int) farPair {
+	if p := fan[k]; p.d == p.d {
+		return p
+	}
+	klat, klon := b.f.ix.Site(k)
+	d, az, _ := geodesy.Inverse(alat, alon, klat, klon)
+	p := farPair{d: d}
+	p.sz, p.cz = math.Sincos(az * math.Pi / 180)
+	fan[k] = p
+	return p
+}
+
+// farPrune keeps, of a super-tile's candidates (more than maxCandidates:
+// dense training points), those that can be nearest to one of its cells,
+// so that the super-tile is bracketed as a sparse one (chords, then
+// anchors) instead of computed cell by cell from denseSites' list (whose
+// chords end at 6000 km). It reports false, leaving b.cands as they were,
+// when a bound below does not apply (a site within twice its distance
+// from the others' reference, near the sites' antipodes) or when more than
+// maxCandidates remain; true with b.cands the sites kept, in their order,
+// which hold every cell's nearest site.
+//
+// Distances from the centre c without a geodesic each: with s0 the
+// candidate of shortest chord, measured (F0 = s(c, s0) and the azimuth at
+// s0 of the geodesic from c, along which the distance from c grows), the
+// distance from c is a function of the site's position whose gradient at
+// s0 is that direction and whose second derivative along the geodesic
+// from s0 to a site k (length d, azimuth beta at s0) lies in farHessian's
+// [A, B] (the comparison theorem, c in the site's role); so
+//
+//	s(c, k) in F0 + d cos(beta - az) + [A, B] d^2/2,
+//
+// widened by 1 mm + 1e-9 F0 and intersected with F0 -+ d, with A and B
+// those of the longest d (both bounds loosen as d grows) when it is below
+// F0/2 and F0 + d <= maxFarDist. One geodesic per candidate and s0,
+// reused across super-tiles and calls (the same s0 serves many).
+//
+// Pruning: j is the candidate of smallest upper end; k is left out when
+//
+//	lo_k - hi_j > T G,  G = 2 sin(D/(2b)) / min(sin(r1/b), sin(r2/b)),
+//
+// with T the longest geodesic from c to a cell of the super-tile, D =
+// s(s0, j) + s(s0, k) >= s(j, k) (and 2 sin(D/2b) taken as its upper
+// bound D/b) and [r1, r2] the range of every
+// candidate's bracket widened by T. Along the geodesic from c to a cell
+// p (length t <= T) the gradient of s(., k) - s(., j) is the difference
+// of two unit vectors at the angle theta the two sites make at that
+// point, of length 2 sin(theta/2); so s(p, k) - s(p, j) >= lo_k - hi_j -
+// T max 2 sin(theta/2) > 0 when that maximum is at most G, and k is never
+// nearest. The bound on theta: in geodesic polar coordinates about the
+// point, the metric is dr^2 + J^2 dtheta^2 with J >= b sin(r/b) (Rauch's
+// comparison theorem with the largest curvature 1/b^2, for r < pi b;
+// do Carmo, Riemannian Geometry, 1992, ch. 10), so the geodesic from j
+// to k (within pi b of the point: Klingenberg's lemma, see maxFarDist,
+// keeps the coordinates valid) is no shorter than the curve with the same
+// coordinates on the sphere of radius b, whose ends are there at least
+// as far apart as the law of cosines gives:
+//
+//	sin^2(theta/2) <= sin((D+dr)/2b) sin((D-dr)/2b) / (sin(r_j/b) sin(r_k/b)) <= sin^2(D/2b) / (sin(r_j/b) sin(r_k/b)),
+//
+// dr = r_j - r_k (|dr| <= D), the last step as sin x sin y <= sin^2((x+y)/2).
+func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64) bool {
+	if !st.ok {
+		return false
+	}
+	pc := geodesy.ECEF(clat, clon)
+	first, cc0 := -1, math.Inf(1)
+	for q, k := range b.cands {
+		if cc := dist3(pc, b.ll.sites[k]); cc < cc0 {
+			first, cc0 = q, cc
+		}
+	}
+	if first < 0 {
+		return false
+	}
+	s0 := b.cands[first]
+	slat, slon := b.f.ix.Site(s0)
+	f0, _, az2 := geodesy.Inverse(clat, clon, slat, slon)
+	sz, cz := math.Sincos(az2 * math.Pi / 180)
+	fan := b.fan(s0)
+	// The longest geodesic from s0 to a candidate, for one [A, B] that
+	// holds for all (both bounds only loosen as d grows).
+	dmax := 0.0
+	for _, k := range b.cands {
+		dmax = max(dmax, b.pair(fan, slat, slon, k).d)
+	}
+	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
+		return false
+	}
+	a, bb, ok := farHessian(farCot(f0), f0, dmax)
+	if !ok && dmax > 0 {
+		return false
+	}
+	margin := 1e-3 + 1e-9*f0
+	lo, hi := b.sc.farLo[:0], b.sc.farHi[:0]
+	j := -1
+	for _, k := range b.cands {
+		p := fan[k]
+		l, h := f0-margin, f0+margin
+		if p.d > 0 {
+			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2
+			l = max(l-p.d, base+a*half-margin)
+			h = min(h+p.d, base+bb*half+margin)
+		}
+		if lo, hi = append(lo, l), append(hi, h); j < 0 || h < hi[j] {
+			j = len(hi) - 1
+		}
+	}
+	b.sc.farLo, b.sc.farHi = lo, hi
+	r1, r2 := slices.Min(lo)-st.tmax, slices.Max(hi)+st.tmax
+	if !(r1 > 0 && r2 <= maxFarDist) {
+		return false
+	}
+	// T G with 2 sin(D/2b) <= D/b.
+	tg := st.tmax * sqrtKmax / (min(math.Sin(r1*sqrtKmax), math.Sin(r2*sqrtKmax)) * (1 - 1e-12))
+	dj := fan[b.cands[j]].d
+	b.kept = b.kept[:0]
+	for q, k := range b.cands {
+		if q != j && lo[q]-hi[j]-tg*(dj+fan[k].d) > 1e-3 {
+			continue
+		}
+		if b.kept = append(b.kept, k); len(b.kept) > maxCandidates {
+			return false
+		}
+	}
+	b.cands = append(b.cands[:0], b.kept...)
 	return true
 }
 

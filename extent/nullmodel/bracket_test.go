@@ -78,6 +78,12 @@ func TestBracketContainsDistance(t *testing.T) {
 		// A small range on a whole-world grid: most cells lie beyond
 		// maxTaylorDist, up to the sites' antipodes.
 		{"world-small-range", -180, 90, 0.5, 720, 360, 10, 45, 10.2, 45.15, 10, 0.5},
+		// Dense training points about 10,000 km away (farPrune), and a
+		// window round their antipode, where it must step aside.
+		{"far-dense", 100, -4, 0.05, 200, 120, 10, 45, 10.5, 45.5, 300, 0.5},
+		{"antipode-dense", -172, -42, 0.05, 100, 60, 10, 45, 10.5, 45.5, 300, 0},
+		{"far-dense-long", -160, -20, 0.05, 200, 120, 10, 45, 12, 45.1, 300, 0.5},
+		{"mid-dense", 75, 12, 0.05, 200, 120, 10, 45, 10.5, 45.5, 300, 0.5},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -120,6 +126,7 @@ func TestBracketContainsDistance(t *testing.T) {
 								}
 							}
 						}
+						t.Logf("%d of %d cells beyond maxTaylorDist bracketed", farOpen, far)
 						if far > 0 && float64(farOpen) < tc.minFar*float64(far) {
 							t.Fatalf("blocks %v: %d of %d cells beyond maxTaylorDist bracketed, want at least %.0f%%", bs, farOpen, far, 100*tc.minFar)
 						}
@@ -751,9 +758,97 @@ func TestDenseSitesHoldNearest(t *testing.T) {
 	}
 }
 
+// TestFarPruneHoldsNearest checks farPrune, which keeps of a super-tile's
+// many candidates those that may be nearest to one of its cells from the
+// bounds of its comparison theorems, at every super-tile of several grids
+// where it gives a list: the dense lattice of TestDenseSitesHoldNearest
+// (where the super-tiles lie near the sites), and windows of 0.05-degree
+// cells about 1,900, 10,000 and 17,000 km from a square and an elongated
+// cluster of 300 sites. At every cell the smallest geodesic to the sites
+// kept is the exact distance of geodesy.Index.Nearest (an independent
+// query over all sites) bit for bit, and on each grid it gives a list for
+// most of the super-tiles with many candidates (our cut-off: half).
+func TestFarPruneHoldsNearest(t *testing.T) {
+	lattice, lix := denseGrid(t, 400, 240, 0.04)
+	cases := []struct {
+		name string
+		f    *Field
+		ix   *geodesy.Index
+		w, h int
+	}{{"lattice", lattice, lix, 240, 240}}
+	for _, g := range []struct {
+		name           string
+		west, north    float64
+		sw, ss, se, sn float64
+	}{
+		{"1900km", 28, 40, 10, 45, 10.5, 45.5},
+		{"10000km", 100, -4, 10, 45, 10.5, 45.5},
+		{"17000km-long", -160, -20, 10, 45, 12, 45.1},
+	} {
+		lats, lons := clusteredSites(300, g.sw, g.ss, g.se, g.sn, 7)
+		ix, err := geodesy.NewIndex(lats, lons)
+		if err != nil {
+			t.Fatal(err)
+		}
+		cases = append(cases, struct {
+			name string
+			f    *Field
+			ix   *geodesy.Index
+			w, h int
+		}{g.name, NewLonLat(ix, g.west, 0.05, g.north, -0.05), ix, 120, 120})
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			ll, ix := tc.f.ll, tc.ix
+			b := bracketer{f: tc.f, ll: ll, sc: new(scratch)}
+			tiles, lists, kept, cands := 0, 0, 0, 0
+			for sr := 0; sr < tc.h/SuperTile; sr++ {
+				st := ll.stencil(SuperTile/2, sr)
+				rho := st.tmax*1.02 + 1
+				for sc := 0; sc < tc.w/SuperTile; sc++ {
+					cr, cc := sr*SuperTile+SuperTile/2, sc*SuperTile+SuperTile/2
+					clat, clon := ll.lat(cr), ll.lon(cc)
+					_, d1 := ix.NearestBounds(clat, clon, 0)
+					b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+					if len(b.cands) <= maxCandidates {
+						continue
+					}
+					tiles++
+					n := len(b.cands)
+					if !b.farPrune(clat, clon, st, rho) {
+						continue
+					}
+					lists++
+					kept += len(b.cands)
+					cands += n
+					for r := sr * SuperTile; r < (sr+1)*SuperTile; r++ {
+						for c := sc * SuperTile; c < (sc+1)*SuperTile; c++ {
+							lat, lon := ll.lat(r), ll.lon(c)
+							_, want := ix.Nearest(lat, lon, 0)
+							got := math.Inf(1)
+							for _, k := range b.cands {
+								slat, slon := ix.Site(k)
+								got = math.Min(got, geodesy.Distance(lat, lon, slat, slon))
+							}
+							if math.Float64bits(got) != math.Float64bits(want) {
+								t.Fatalf("cell (%d, %d): %v over the %d sites kept of %d, Nearest %v", c, r, got, len(b.cands), n, want)
+							}
+						}
+					}
+				}
+			}
+			t.Logf("%d super-tiles with more than %d candidates, %d with a list: %d sites kept of %d", tiles, maxCandidates, lists, kept, cands)
+			if tiles == 0 || lists*2 < tiles {
+				t.Fatalf("%d super-tiles with many candidates, %d lists: farPrune not at work", tiles, lists)
+			}
+		})
+	}
+}
+
 // TestBracketDenseLattice checks Bracket around a dense lattice of sites,
-// where most super-tiles have more candidates than the anchors measure and
-// their cells are computed exactly from denseSites' lists: against
+// where many super-tiles have more candidates than the anchors measure and
+// their cells are computed exactly from denseSites' lists (the others
+// take farPrune's few sites and are bracketed): against
 // Distances (Index.Nearest's values bit for bit) as in
 // TestBracketContainsDistance, the same brackets for several cuts into
 // blocks, and the same under a need mask.
@@ -790,7 +885,7 @@ func TestBracketDenseLattice(t *testing.T) {
 				continue
 			}
 			t.Logf("blocks %v: %d of %d cells exact", bs, exact, len(want))
-			if exact < len(want)/4 {
+			if exact < len(want)/10 {
 				t.Fatalf("blocks %v: %d of %d cells exact: not the dense case", bs, exact, len(want))
 			}
 			key := append(append([]float64{}, lo...), hi...)

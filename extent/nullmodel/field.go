@@ -77,6 +77,12 @@ type scratch struct {
 	rowA, rowZ []float64 // Bracket's ECEF rows and columns
 	colC, colS []float64
 	cover      geodesy.Cover // Bracket's sites around a row of super-tiles
+	// farPrune's geodesics from a reference site to the others, by
+	// reference site (each slice has one entry per site, d NaN until
+	// computed; kept across calls, up to fanLimit of them), and each
+	// candidate's bracket.
+	fans         map[int][]farPair
+	farLo, farHi []float64
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
