@@ -2,7 +2,6 @@ package geodesy
 
 import (
 	"math"
-	"slices"
 )
 
 // Cover is a list of sites around a point P, those within some radius of
@@ -132,6 +131,6 @@ func (c *Cover) Within(pt *Point, maxDist float64, dst []int) ([]int, bool) {
 		}
 		dst = append(dst, int(ix.ids[s]))
 	}
-	slices.Sort(dst[n:])
+	sortIDs(dst[n:], ix.Len())
 	return dst, true
 }

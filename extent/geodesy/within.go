@@ -2,7 +2,9 @@ package geodesy
 
 import (
 	"math"
+	"math/bits"
 	"slices"
+	"sync"
 )
 
 // Within appends to dst, in ascending order, the index of every site that
@@ -27,10 +29,46 @@ func (ix *Index) Within(lat, lon, maxDist float64, dst []int) []int {
 	for _, c := range buf {
 		dst = append(dst, int(ix.ids[c.slot]))
 	}
-	slices.Sort(dst[n:])
+	sortIDs(dst[n:], ix.Len())
 	if cap(buf) <= maxPooledCands {
 		*bp = buf[:0]
 		candPool.Put(bp)
 	}
 	return dst
 }
+
+// sortIDs sorts ids, distinct integers in [0, n) (site indices), in
+// ascending order, as slices.Sort would: when the list is long against n
+// (dense training points give lists of thousands) by marking them in a
+// bitmap of n bits and reading it back, a pass over n/64 words instead of
+// a comparison sort; otherwise with slices.Sort. The cut-offs are our
+// choice.
+func sortIDs(ids []int, n int) {
+	if len(ids) < 128 || n > 64*len(ids) {
+		slices.Sort(ids)
+		return
+	}
+	bp := bitmapPool.Get().(*[]uint64)
+	words := *bp
+	if nw := (n + 63) / 64; cap(words) < nw {
+		words = make([]uint64, nw)
+	} else {
+		words = words[:nw]
+	}
+	for _, id := range ids {
+		words[id>>6] |= 1 << (uint(id) & 63)
+	}
+	k := 0
+	for w, x := range words {
+		for x != 0 {
+			ids[k] = w<<6 | bits.TrailingZeros64(x)
+			k++
+			x &= x - 1
+		}
+		words[w] = 0
+	}
+	*bp = words
+	bitmapPool.Put(bp)
+}
+
+var bitmapPool = sync.Pool{New: func() any { return new([]uint64) }}

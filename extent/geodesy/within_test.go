@@ -38,3 +38,25 @@ func TestWithin(t *testing.T) {
 		t.Errorf("latitude 91: %d sites listed, want none", n)
 	}
 }
+
+// TestSortIDs checks sortIDs against slices.Sort on random lists of
+// distinct indices, short and long against n (both of its ways), with
+// the bitmap reused between calls.
+func TestSortIDs(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 10))
+	for trial := range 300 {
+		n := 1 + r.IntN(20000)
+		perm := r.Perm(n)
+		ids := perm[:r.IntN(n+1)]
+		if trial%3 == 0 {
+			ids = perm[:min(n, 128+r.IntN(2000))]
+		}
+		want := slices.Clone(ids)
+		slices.Sort(want)
+		got := slices.Clone(ids)
+		sortIDs(got, n)
+		if !slices.Equal(got, want) {
+			t.Fatalf("trial %d (n %d, %d ids): sortIDs differs from slices.Sort", trial, n, len(ids))
+		}
+	}
+}
