@@ -940,12 +940,47 @@ func ballLower(p, q [3]float64) float64 {
 // anchored brackets the cells of the block in global tile (tr, tc) (rows
 // tr*16 to tr*16+15 and columns tc*16 to tc*16+15 of the grid) that their
 // chord left too wide, from the tile's anchor, its centre cell (tr*16+8,
-// tc*16+8), whatever the block: see bracketProjected. A cell whose bracket
-// is still too wide or across a bin is computed exactly.
+// tc*16+8), whatever the block: see bracketProjected; a cell whose
+// bracket is then wider than exactWidth floor bins from the centre cell of
+// its sub-tile of 4 x 4 cells, (tr*16 + 4i + 2, tc*16 + 4j + 2). A cell
+// whose bracket is still too wide or across a bin is computed exactly.
 func (b *projBracketer) anchored(tr, tc int) {
-	sc := b.sc
 	r0, r1 := max(tr*tileSide-b.y0, 0), min((tr+1)*tileSide-b.y0, b.h)
 	c0, c1 := max(tc*tileSide-b.x0, 0), min((tc+1)*tileSide-b.x0, b.w)
+	if !b.anchorAt(r0, r1, c0, c1, tr*tileSide+tileSide/2, tc*tileSide+tileSide/2, false) {
+		return
+	}
+	// The cells left too wide: from the centre cells of their sub-tiles.
+	for sr := range tileSide / subTile {
+		gr := tr*tileSide + sr*subTile
+		y0, y1 := max(gr-b.y0, r0), min(gr+subTile-b.y0, r1)
+		for scol := range tileSide / subTile {
+			gc := tc*tileSide + scol*subTile
+			x0, x1 := max(gc-b.x0, c0), min(gc+subTile-b.x0, c1)
+			if y0 < y1 && x0 < x1 {
+				b.anchorAt(y0, y1, x0, x1, gr+subTile/2, gc+subTile/2, true)
+			}
+		}
+	}
+}
+
+// subTile is the side, in cells, of the sub-tiles (4 x 4 to a tile) whose
+// centre cells anchor the cells that a tile's anchor leaves with a
+// bracket wider than exactWidth floor bins: our choice. Their geodesics
+// from the anchor are about a quarter of the tile's, their Taylor
+// brackets about a sixteenth as wide; on coarse world maps (cells of 10 km
+// and more, tiles of 160 km) most cells near the training points were
+// computed exactly without them.
+const subTile = 4
+
+// anchorAt brackets the pending cells of block rows [r0, r1) and columns
+// [c0, c1) from the anchor at global cell (ar, ac), whatever the block
+// (see bracketProjected). A cell whose bracket is still too wide or
+// across a bin is computed exactly when final is true; otherwise one
+// whose bracket is wider than exactWidth floor bins stays pending, and
+// anchorAt reports whether any did.
+func (b *projBracketer) anchorAt(r0, r1, c0, c1, ar, ac int, final bool) bool {
+	sc := b.sc
 	any := false
 	for r := r0; r < r1 && !any; r++ {
 		for c := c0; c < c1; c++ {
@@ -956,13 +991,12 @@ func (b *projBracketer) anchored(tr, tc int) {
 		}
 	}
 	if !any {
-		return
+		return false
 	}
-	ar, ac := tr*tileSide+tileSide/2, tc*tileSide+tileSide/2
 	alat, alon := b.centre(ar-b.y0, ac-b.x0)
 	if !validLonLat(alat, alon) {
 		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0)
-		return
+		return false
 	}
 	pa := projECEF(alat, alon)
 	// The largest upper bound on a pending cell's geodesic from the anchor.
@@ -982,7 +1016,7 @@ func (b *projBracketer) anchored(tr, tc int) {
 	}
 	_, tmax := chordBracket(dmax)
 	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
-	b.taylorCells(r0, r1, c0, c1, alat, alon, pa)
+	return b.taylorCells(r0, r1, c0, c1, alat, alon, pa, final)
 }
 
 // anchorSites measures at the anchor (alat, alon) (ECEF pa) every site
@@ -1056,7 +1090,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 // measured at the anchor (alat, alon), ECEF pa (see bracketProjected),
 // keeps the intersection with its chord bracket when it is narrow and
 // inside one bin, and computes the cell exactly otherwise.
-func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64) {
+func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64, final bool) (left bool) {
 	sc := b.sc
 	const rad = math.Pi / 180
 	sp, cp := math.Sincos(alat * rad)
@@ -1117,6 +1151,10 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 				b.lo[i], b.hi[i] = lo, hi
 				continue
 			}
+			if !final && hi-lo > exactWidth*b.bins.binW {
+				sc.pend[i], left = true, true
+				continue
+			}
 			if ep > 0 {
 				b.exactLater(i, false)
 				continue
@@ -1126,6 +1164,7 @@ func (b *projBracketer) taylorCells(r0, r1, c0, c1 int, alat, alon float64, pa [
 		}
 	}
 	b.flushExact(sc.asites)
+	return left
 }
 
 // projTaylor returns bounds on the distance to site m from a cell at
@@ -1140,9 +1179,23 @@ func projTaylor(m *projAnchor, tl, th, tc, e1, margin float64) (lo, hi float64) 
 			// The far form (see farHessian): t f'(0) in [tc - e1, tc +
 			// e1], f'' in [A, B] with A <= 0 <= B, t <= th.
 			if a, b, ok := farHessian(m.cx, m.f0, th); ok {
+				// f'' = h (1 - f'^2): both bounds times the largest 1 -
+				// f'^2 over the range f' can take, [cl + th A q, ch + th B
+				// q] (f'(0) in [cl, ch]), q first 1, then twice from the
+				// previous q.
+				cl, ch := -1.0, 1.0
+				if tl > 0 {
+					a1, a2 := tc-e1, tc+e1
+					cl = max(-1, min(a1/tl, a1/th))
+					ch = min(1, max(a2/tl, a2/th))
+				}
+				q := 1.0
+				for range 2 {
+					q = 1 - minSq(max(-1, cl+th*a*q), min(1, ch+th*b*q))
+				}
 				half := th * th / 2
-				lo = max(lo, m.f0+(tc-e1)+a*half-margin)
-				hi = min(hi, m.f0+(tc+e1)+b*half+margin)
+				lo = max(lo, m.f0+(tc-e1)+a*q*half-margin)
+				hi = min(hi, m.f0+(tc+e1)+b*q*half+margin)
 			}
 		}
 		return lo, hi
