@@ -151,6 +151,10 @@ const maxTaylorDist = 6e6
 // point within it but the site.
 const maxFarDist = 19e6
 
+// farAMin is a lower bound on the far form's A (farHessian) at any
+// distance up to maxFarDist: cot(maxFarDist/b)/b, lowered by 1%.
+var farAMin = 1.01 * sqrtKmax * math.Cos(maxFarDist*sqrtKmax) / math.Sin(maxFarDist*sqrtKmax)
+
 // lonLat describes a north-up latitude-longitude grid: centre of cell
 // (c, r) at (west + (c+0.5) dlon, north + (r+0.5) dlat) degrees, as
 // extent.Grid.Centre computes it.
@@ -391,9 +395,6 @@ func (f *Field) bracketLonLat(x0, y0, w, h int, need []uint64, bins Binner, lo, 
 		sc.pending = make([]bool, n)
 	}
 	clear(sc.pending[:n])
-	if len(sc.fans)*f.ix.Len() > fanLimit {
-		clear(sc.fans)
-	}
 	if cap(sc.clo) < n {
 		sc.clo, sc.chi = make([]float64, n), make([]float64, n)
 	}
@@ -1197,35 +1198,39 @@ type farPair struct {
 	d, sz, cz float64
 }
 
-// fanLimit bounds the geodesics farPrune keeps (entries of scratch.fans,
-// 24 bytes each): our choice, 24 MiB per worker.
+// fanLimit bounds the geodesics kept by siteFans (24 bytes each): our
+// choice, 24 MiB per worker.
 const fanLimit = 1 << 20
 
-// fan returns the slice of geodesics from site a to the others (pair
-// fills its entries), made once per Bracket call or kept from an earlier
-// one.
-func (b *bracketer) fan(a int) []farPair {
-	if fan, ok := b.sc.fans[a]; ok {
+// siteFans holds, by reference site, the geodesics from it to the other
+// sites (one entry per site, d NaN until computed): what farPrune and the
+// projected path's prunable ask for, kept across Bracket calls (reset
+// beyond fanLimit entries).
+type siteFans map[int][]farPair
+
+// fan returns the geodesics from site a to the others, made once.
+func (fs *siteFans) fan(ix *geodesy.Index, a int) []farPair {
+	if fan, ok := (*fs)[a]; ok {
 		return fan
 	}
-	fan := make([]farPair, b.f.ix.Len())
+	if *fs == nil || len(*fs)*ix.Len() > fanLimit {
+		*fs = siteFans{}
+	}
+	fan := make([]farPair, ix.Len())
 	for k := range fan {
 		fan[k].d = math.NaN()
 	}
-	if b.sc.fans == nil {
-		b.sc.fans = map[int][]farPair{}
-	}
-	b.sc.fans[a] = fan
+	(*fs)[a] = fan
 	return fan
 }
 
-// pair returns the geodesic from the site whose fan is fan, at (alat,
-// alon), to site k (geodesy.Inverse), computed once.
-func (b *bracketer) pair(fan []farPair, alat, alon float64, k int) farPair {
+// pairAt returns the geodesic from the site whose fan is fan, at (alat,
+// alon), to site k of ix (geodesy.Inverse), computed once.
+func pairAt(ix *geodesy.Index, fan []farPair, alat, alon float64, k int) farPair {
 	if p := fan[k]; p.d == p.d {
 		return p
 	}
-	klat, klon := b.f.ix.Site(k)
+	klat, klon := ix.Site(k)
 	d, az, _ := geodesy.Inverse(alat, alon, klat, klon)
 	p := farPair{d: d}
 	p.sz, p.cz = math.Sincos(az * math.Pi / 180)
@@ -1300,12 +1305,12 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64) bool 
 	slat, slon := b.f.ix.Site(s0)
 	f0, _, az2 := geodesy.Inverse(clat, clon, slat, slon)
 	sz, cz := math.Sincos(az2 * math.Pi / 180)
-	fan := b.fan(s0)
+	fan := b.sc.fans.fan(b.f.ix, s0)
 	// The longest geodesic from s0 to a candidate, for one [A, B] that
 	// holds for all (both bounds only loosen as d grows).
 	dmax := 0.0
 	for _, k := range b.cands {
-		dmax = max(dmax, b.pair(fan, slat, slon, k).d)
+		dmax = max(dmax, pairAt(b.f.ix, fan, slat, slon, k).d)
 	}
 	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
 		return false

@@ -31,6 +31,9 @@ type Field struct {
 	// exactCentres makes Bracket take every centre from Centres, as
 	// before interpolated centres (tests compare both).
 	exactCentres bool
+	// measureAll makes the projected path's anchors measure every
+	// candidate site (no prunable), as before it (tests compare both).
+	measureAll bool
 }
 
 // New returns the distance field of the sites of ix on the grid described by
@@ -77,11 +80,8 @@ type scratch struct {
 	rowA, rowZ []float64 // Bracket's ECEF rows and columns
 	colC, colS []float64
 	cover      geodesy.Cover // Bracket's sites around a row of super-tiles
-	// farPrune's geodesics from a reference site to the others, by
-	// reference site (each slice has one entry per site, d NaN until
-	// computed; kept across calls, up to fanLimit of them), and each
-	// candidate's bracket.
-	fans         map[int][]farPair
+	// farPrune's geodesics between sites, and each candidate's bracket.
+	fans         siteFans
 	farLo, farHi []float64
 }
 

@@ -1,7 +1,9 @@
 package nullmodel
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"sync"
 
 	"areasweep/extent/geodesy"
@@ -24,6 +26,7 @@ type projSite struct {
 	p        [3]float64
 	cc       float64
 	lat, lon float64
+	k        int // its index in the Index
 }
 
 // projScratch holds one projected Bracket call's buffers.
@@ -47,6 +50,10 @@ type projScratch struct {
 	qc, qr, qs []int // a transform's cells (and slots)
 	qlon, qlat []float64
 	later      []projLater // cells to compute at their exact centres
+	fans       siteFans    // prunable's geodesics between sites
+	skip       []bool      // prunable's verdicts, by chord order
+	// prunable's brackets of each candidate's distance from the anchor
+	pruneLo, pruneHi []float64
 }
 
 // projLater is a cell queued for flushExact.
@@ -56,16 +63,21 @@ type projLater struct {
 }
 
 // chordSites sets sc.sites to the sites of sc.cands with their ECEF
-// positions and chords from p, in increasing order of chord (insertion
-// sort: the lists hold a few sites), and returns them.
+// positions and chords from p, in increasing order of chord (a stable
+// sort: insertion sort's order, which long lists of dense training points
+// made quadratic), and returns them.
 func (sc *projScratch) chordSites(ix *geodesy.Index, p [3]float64) []projSite {
 	sc.sites = sc.sites[:0]
 	for _, k := range sc.cands {
 		lat, lon := ix.Site(k)
 		q := projECEF(lat, lon)
-		sc.sites = append(sc.sites, projSite{p: q, cc: dist3(p, q), lat: lat, lon: lon})
+		sc.sites = append(sc.sites, projSite{p: q, cc: dist3(p, q), lat: lat, lon: lon, k: k})
 	}
 	sites := sc.sites
+	if len(sites) > 32 {
+		slices.SortStableFunc(sites, func(a, b projSite) int { return cmp.Compare(a.cc, b.cc) })
+		return sites
+	}
 	for i := 1; i < len(sites); i++ {
 		for j := i; j > 0 && sites[j].cc < sites[j-1].cc; j-- {
 			sites[j], sites[j-1] = sites[j-1], sites[j]
@@ -995,13 +1007,13 @@ func (b *projBracketer) anchorAt(r0, r1, c0, c1, ar, ac int, final bool) bool {
 	}
 	alat, alon := b.centre(ar-b.y0, ac-b.x0)
 	if !validLonLat(alat, alon) {
-		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0)
+		b.anchorSites(r0, r1, c0, c1, math.NaN(), 0, [3]float64{}, 0, 0)
 		return false
 	}
 	pa := projECEF(alat, alon)
 	// The largest upper bound on a pending cell's geodesic from the anchor.
 	// (Cells beyond maxChord, with no upper end, are computed exactly.)
-	dmax := 0.0
+	dmax, epmax := 0.0, 0.0
 	for r := r0; r < r1; r++ {
 		for c := c0; c < c1; c++ {
 			i := r*b.w + c
@@ -1010,20 +1022,22 @@ func (b *projBracketer) anchorAt(r0, r1, c0, c1, ar, ac int, final bool) bool {
 			}
 			dx, dy, dz := b.ex[i]-pa[0], b.ey[i]-pa[1], b.ez[i]-pa[2]
 			if d := math.Sqrt(dx*dx+dy*dy+dz*dz) + b.err[i]; d <= maxChord {
-				dmax = max(dmax, d)
+				dmax, epmax = max(dmax, d), max(epmax, b.err[i])
 			}
 		}
 	}
 	_, tmax := chordBracket(dmax)
-	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax)
+	b.anchorSites(r0, r1, c0, c1, alat, alon, pa, tmax, epmax)
 	return b.taylorCells(r0, r1, c0, c1, alat, alon, pa, final)
 }
 
 // anchorSites measures at the anchor (alat, alon) (ECEF pa) every site
 // that can be nearest to a pending cell within tmax of it or give it the
-// smallest bracket, into sc.anchor (by distance) and sc.asites; with no
-// anchor (alat NaN) it computes the pending cells exactly instead.
-func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64, tmax float64) {
+// smallest bracket, into sc.anchor (by distance) and sc.asites, but those
+// prunable shows to matter to none (epmax bounds the error of the pending
+// cells' interpolated positions); with no anchor (alat NaN) it computes
+// the pending cells exactly instead.
+func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [3]float64, tmax, epmax float64) {
 	sc := b.sc
 	ix := b.f.ix
 	if math.IsNaN(alat) {
@@ -1047,11 +1061,15 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 	slack := 2*tmax + 2*(1e-3+1e-9*d1) + 1
 	sc.cands = ix.Within(alat, alon, d1+slack, sc.cands[:0])
 	sites := sc.chordSites(ix, pa)
+	skip := b.prunable(sites, alat, alon, tmax, epmax)
 	best := math.Inf(1)
 	an := sc.anchor[:0]
-	for _, st := range sites {
+	for q, st := range sites {
 		if l, _ := chordBracket(st.cc); l > best+slack {
 			break // this site and the later ones are farther still
+		}
+		if skip != nil && skip[q] {
+			continue
 		}
 		f0, az, _ := geodesy.Inverse(alat, alon, st.lat, st.lon)
 		sz, cz := math.Sincos(az * math.Pi / 180)
@@ -1084,6 +1102,94 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 	for _, m := range an {
 		sc.asites = append(sc.asites, m.site)
 	}
+}
+
+// prunable reports, for an anchor (alat, alon) with many candidate sites
+// (dense training points; nil with at most maxCandidates), which of them,
+// by their order in sites (by chord, as chordSites gives them), cannot
+// change either end of any pending cell's bracket nor be its nearest
+// site, so that anchorSites need not measure them: the brackets and exact
+// distances are then the same, bit for bit, as with every site measured.
+// tmax bounds the cells' th (their geodesic from the anchor) and their
+// chord, epmax the error of their interpolated positions.
+//
+// Each candidate's distance f_k(a) from the anchor is bracketed without a
+// geodesic of its own, from the chord-nearest site s0 measured there, as
+// in farPrune: [lo_k, hi_k]. With j the candidate of smallest hi_j, at a
+// cell p (th <= T = tmax) where both sites take a Taylor bracket (near or
+// far form: f > 2 th and f + th <= maxFarDist), k's lower end is at least
+// f_k(a) + tc_k - e1 - |A| th^2/2 - m (A >= farAMin, the far form's most
+// negative bound; the near form's is >= 0) and j's upper end at most
+// f_j(a) + tc_j + e1 + th^2/(2 (f_j(a) - th)) + m, with m the margin
+// and e1 <= kappa^2 T^3/6 + 1e-6 + epmax (see bracketProjected). tc_k -
+// tc_j = -<w, v_k - v_j>, |w| <= T the offset in the anchor's tangent
+// plane, and |v_k - v_j| = 2 sin(theta/2) <= D/(b smin) for the angle
+// theta the two sites make at the anchor (Rauch's comparison, see
+// farPrune; D = s(s0, j) + s(s0, k), smin the smallest sine of r/b over
+// the brackets). So k's lower end lies above j's upper end, and above the
+// cell's (the minimum), at every such cell when
+//
+//	lo_k - hi_j > T D/(b smin) + 2 e1 + (|farAMin| + 1/(lo_j - T)) T^2/2 + 2 m + 1 mm:
+//
+// k then changes neither end of any bracket (the minima over the sites)
+// and, its distance above the cell's upper end, is never a cell's nearest
+// site. The anchor's own nearest site is never left out (f_k(a) > f_j(a)),
+// so the sites anchorSites keeps (within its slack of it) are the same
+// less those left out.
+func (b *projBracketer) prunable(sites []projSite, alat, alon, tmax, epmax float64) []bool {
+	if len(sites) <= maxCandidates || !(tmax > 0 && tmax <= geodesy.SemiMinor) || b.f.measureAll {
+		return nil
+	}
+	sc := b.sc
+	ix := b.f.ix
+	s0 := &sites[0]
+	f0, _, az2 := geodesy.Inverse(alat, alon, s0.lat, s0.lon)
+	sz, cz := math.Sincos(az2 * math.Pi / 180)
+	fan := sc.fans.fan(ix, s0.k)
+	dmax := 0.0
+	for q := range sites {
+		dmax = max(dmax, pairAt(ix, fan, s0.lat, s0.lon, sites[q].k).d)
+	}
+	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
+		return nil
+	}
+	a, bb, ok := farHessian(farCot(f0), f0, dmax)
+	if !ok && dmax > 0 {
+		return nil
+	}
+	margin := 1e-3 + 1e-9*f0
+	lo, hi := sc.pruneLo[:0], sc.pruneHi[:0]
+	j := 0
+	for q := range sites {
+		p := fan[sites[q].k]
+		l, h := f0-margin, f0+margin
+		if p.d > 0 {
+			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2
+			l = max(l-p.d, base+a*half-margin)
+			h = min(h+p.d, base+bb*half+margin)
+		}
+		lo, hi = append(lo, l), append(hi, h)
+		if h < hi[j] {
+			j = q
+		}
+	}
+	sc.pruneLo, sc.pruneHi = lo, hi
+	r1, r2 := slices.Min(lo), slices.Max(hi)
+	if !(r1 > 2*tmax && r2+tmax <= maxFarDist) {
+		return nil // a site without a Taylor bracket at some cell
+	}
+	smin := min(math.Sin(r1*sqrtKmax), math.Sin(r2*sqrtKmax)) * (1 - 1e-12)
+	e1 := chordKappa*chordKappa/6*tmax*tmax*tmax + 1e-6 + epmax
+	m := 1e-3 + 1e-9*maxFarDist
+	slack := 2*e1 + (-farAMin+1/(lo[j]-tmax))*tmax*tmax/2 + 2*m + 1e-3
+	tg := tmax * sqrtKmax / smin
+	dj := fan[sites[j].k].d
+	skip := sc.skip[:0]
+	for q := range sites {
+		skip = append(skip, q != j && lo[q]-hi[j]-tg*(dj+fan[sites[q].k].d)-slack > 0)
+	}
+	sc.skip = skip
+	return skip
 }
 
 // taylorCells brackets each pending cell of the tile from the sites

@@ -345,3 +345,80 @@ func TestECEFLatLon(t *testing.T) {
 		}
 	}
 }
+
+// TestPrunableSameBrackets checks prunable, which spares the projected
+// path's anchors the geodesics to candidate sites that can change no
+// bracket: on grids near and far from a dense cluster of sites (square and
+// elongated), Bracket gives the same brackets bit for bit with it and with
+// every candidate measured (Field.measureAll), for two cuts into blocks,
+// and it leaves sites out on the grids far from the cluster (it is at
+// work; near it, within twice the cluster's size, it steps aside).
+func TestPrunableSameBrackets(t *testing.T) {
+	for _, tc := range []struct {
+		name           string
+		cen            Centres
+		w, h           int
+		sw, ss, se, sn float64
+		pruned         bool // sites must be left out (far enough from the cluster)
+	}{
+		{"near-2km", laeaGrid(-150e3, 160e3, 2000, 45, 10), 150, 160, 9.5, 44.5, 10.5, 45.5, false},
+		{"1500km-5km", laeaGrid(-300e3, 300e3, 5000, 40, 25), 120, 120, 9, 44, 9.5, 44.5, true},
+		{"10000km-2km", laeaGrid(-150e3, 160e3, 2000, -4, 100), 150, 160, 9, 44, 9.5, 44.5, true},
+		{"17000km-long-2km", laeaGrid(-150e3, 160e3, 2000, -20, -160), 150, 160, 9, 44, 11, 44.1, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			lats, lons := clusteredSites(300, tc.sw, tc.ss, tc.se, tc.sn, 5)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			n := tc.w * tc.h
+			want := make([]float64, n)
+			New(ix, tc.cen).Distances(0, 0, tc.w, tc.h, nil, want)
+			all := New(ix, tc.cen)
+			all.measureAll = true
+			layout := testLayout(t, want, all.FarthestBound(tc.w, tc.h, 16))
+			for _, bs := range [][2]int{{tc.w, tc.h}, {45, 30}} {
+				var ref []float64
+				for _, f := range []*Field{all, New(ix, tc.cen)} {
+					lo, hi := make([]float64, n), make([]float64, n)
+					walkTiles(tc.w, tc.h, bs[0], bs[1], nil, [][]float64{lo, hi}, func(x0, y0, w, h int, nd []uint64, bufs [][]float64) {
+						f.Bracket(x0, y0, w, h, nd, layout, bufs[0], bufs[1])
+					})
+					checkBrackets(t, fmt.Sprintf("blocks %v measureAll %v", bs, f.measureAll), want, lo, hi, nil, layout)
+					key := append(lo, hi...)
+					if ref == nil {
+						ref = key
+						continue
+					}
+					for i := range key {
+						if math.Float64bits(key[i]) != math.Float64bits(ref[i]) {
+							t.Fatalf("blocks %v: cell %d: [%v, %v] with prunable, [%v, %v] with every site measured", bs, i%n, lo[i%n], hi[i%n], ref[i%n], ref[n+i%n])
+						}
+					}
+				}
+			}
+			// It is at work: the anchors of one block leave sites out.
+			b := &projBracketer{f: New(ix, tc.cen), sc: new(projScratch)}
+			left := 0
+			for r := 8; r < tc.h; r += 16 {
+				for c := 8; c < tc.w; c += 16 {
+					lon, lat := make([]float64, 1), make([]float64, 1)
+					tc.cen(r, c, c+1, lon, lat)
+					_, d1 := ix.NearestBounds(lat[0], lon[0], 0)
+					b.sc.cands = ix.Within(lat[0], lon[0], d1+2*30e3, b.sc.cands[:0])
+					sites := b.sc.chordSites(ix, projECEF(lat[0], lon[0]))
+					for _, s := range b.prunable(sites, lat[0], lon[0], 30e3, 0) {
+						if s {
+							left++
+						}
+					}
+				}
+			}
+			t.Logf("%d sites left out at the anchors", left)
+			if tc.pruned && left == 0 {
+				t.Fatal("prunable left no site out")
+			}
+		})
+	}
+}
