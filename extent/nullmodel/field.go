@@ -31,6 +31,10 @@ type Field struct {
 	// exactCentres makes Bracket take every centre from Centres, as
 	// before interpolated centres (tests compare both).
 	exactCentres bool
+	// projOnce fills projPts, the projECEF position of each site, for
+	// the projected path's chords.
+	projOnce sync.Once
+	projPts  [][3]float64
 	// measureAll makes the projected path's anchors measure every
 	// candidate site (no prunable), as before it (tests compare both).
 	measureAll bool

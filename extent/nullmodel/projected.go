@@ -66,11 +66,12 @@ type projLater struct {
 // positions and chords from p, in increasing order of chord (a stable
 // sort: insertion sort's order, which long lists of dense training points
 // made quadratic), and returns them.
-func (sc *projScratch) chordSites(ix *geodesy.Index, p [3]float64) []projSite {
+func (sc *projScratch) chordSites(f *Field, p [3]float64) []projSite {
+	ix, pts := f.ix, f.sitePoints()
 	sc.sites = sc.sites[:0]
 	for _, k := range sc.cands {
 		lat, lon := ix.Site(k)
-		q := projECEF(lat, lon)
+		q := pts[k]
 		sc.sites = append(sc.sites, projSite{p: q, cc: dist3(p, q), lat: lat, lon: lon, k: k})
 	}
 	sites := sc.sites
@@ -84,6 +85,17 @@ func (sc *projScratch) chordSites(ix *geodesy.Index, p [3]float64) []projSite {
 		}
 	}
 	return sites
+}
+
+// sitePoints returns the projECEF position of every site, computed once.
+func (f *Field) sitePoints() [][3]float64 {
+	f.projOnce.Do(func() {
+		f.projPts = make([][3]float64, f.ix.Len())
+		for k := range f.projPts {
+			f.projPts[k] = projECEF(f.ix.Site(k))
+		}
+	})
+	return f.projPts
 }
 
 // projAnchor is a site measured at a tile's anchor: its exact distance
@@ -784,6 +796,13 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 				b.cells(r0, r1, c0, c1, pc, rho)
 				return
 			}
+			// Many candidates (dense training points): when few of them can
+			// give a cell of the tile its shortest chord, as far from a
+			// cluster, the tile need not be split.
+			if sites, near := b.nearSites(pc, rho); len(near) <= maxCandidates {
+				b.cellsWith(r0, r1, c0, c1, rho, sites, near)
+				return
+			}
 		}
 	}
 	if single {
@@ -797,8 +816,16 @@ func (b *projBracketer) tile(r0, r1, c0, c1 int) {
 // sc.cands; pc is the ECEF position of the tile's centre and rho bounds
 // the chord from it to every needed cell.
 func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
+	sites, near := b.nearSites(pc, rho)
+	b.cellsWith(r0, r1, c0, c1, rho, sites, near)
+}
+
+// nearSites returns the candidates in sc.cands by chord from the tile's
+// centre pc (chordSites) and, of them, those that can give a cell within
+// rho of pc its shortest chord (see below).
+func (b *projBracketer) nearSites(pc [3]float64, rho float64) (sites, near []projSite) {
 	sc := b.sc
-	sites := sc.chordSites(b.f.ix, pc)
+	sites = sc.chordSites(b.f, pc)
 	// A site q is farther by chord than the first (P_0) from every cell p
 	// of the tile when
 	//
@@ -807,7 +834,7 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 	// (the difference is linear in p; |p - c| <= rho): it is never the
 	// shortest chord, and is left out of the chords (with 1 m^2 and 1e-12
 	// cc_q^2 for rounding), though not out of an exact cell's sites.
-	near := append(sc.near[:0], sites...)
+	near = append(sc.near[:0], sites...)
 	if len(near) > 1 {
 		p0, cc0 := near[0].p, near[0].cc
 		keep := near[:1]
@@ -820,6 +847,13 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 		near = keep
 	}
 	sc.near = near
+	return sites, near
+}
+
+// cellsWith is cells with the tile's candidates by chord (sites) and
+// those of them that can give a cell its shortest chord (near).
+func (b *projBracketer) cellsWith(r0, r1, c0, c1 int, rho float64, sites, near []projSite) {
+	sc := b.sc
 	for r := r0; r < r1; r++ {
 		for c := c0; c < c1; c++ {
 			i := r*b.w + c
@@ -1060,7 +1094,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 	_, d1 := ix.NearestBounds(alat, alon, 0)
 	slack := 2*tmax + 2*(1e-3+1e-9*d1) + 1
 	sc.cands = ix.Within(alat, alon, d1+slack, sc.cands[:0])
-	sites := sc.chordSites(ix, pa)
+	sites := sc.chordSites(b.f, pa)
 	skip := b.prunable(sites, alat, alon, tmax, epmax)
 	best := math.Inf(1)
 	an := sc.anchor[:0]
