@@ -580,10 +580,16 @@ func (b *bracketer) super(sr, scol int) {
 		if b.cands, hit = b.cover.Within(&pt, d1+2*rho, b.cands[:0]); !hit {
 			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
 		}
-		if len(b.cands) > maxCandidates {
-			// Far from a dense cluster: the few candidates that can be
-			// nearest somewhere in the super-tile, taken as a sparse one's.
-			b.farPrune(clat, clon, big, rho)
+		switch {
+		case len(b.cands) > maxCandidates:
+			// Dense training points: the few candidates that can be
+			// nearest somewhere in the super-tile, taken as a sparse
+			// one's.
+			b.farPrune(clat, clon, big, rho, false)
+		case len(b.cands) >= farPruneMin:
+			// Thousands of kilometres from a few points close together,
+			// the same spares the anchors a geodesic to each.
+			b.farPrune(clat, clon, big, rho, true)
 		}
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
 		if len(b.cands) > maxCandidates {
@@ -1203,24 +1209,30 @@ type farPair struct {
 const fanLimit = 1 << 20
 
 // siteFans holds, by reference site, the geodesics from it to the other
-// sites (one entry per site, d NaN until computed): what farPrune and the
-// projected path's prunable ask for, kept across Bracket calls (reset
-// beyond fanLimit entries).
-type siteFans map[int][]farPair
+// sites of one Index (one entry per site, d NaN until computed): what
+// farPrune and the projected path's prunable ask for, kept across Bracket
+// calls on that Index (the scratch that holds it is pooled across Fields:
+// another Index, or more than fanLimit entries, starts it afresh).
+type siteFans struct {
+	ix *geodesy.Index
+	m  map[int][]farPair
+}
 
-// fan returns the geodesics from site a to the others, made once.
+// fan returns the geodesics from site a of ix to the others, made once.
 func (fs *siteFans) fan(ix *geodesy.Index, a int) []farPair {
-	if fan, ok := (*fs)[a]; ok {
-		return fan
+	if fs.ix == ix {
+		if fan, ok := fs.m[a]; ok {
+			return fan
+		}
 	}
-	if *fs == nil || len(*fs)*ix.Len() > fanLimit {
-		*fs = siteFans{}
+	if fs.ix != ix || fs.m == nil || len(fs.m)*ix.Len() > fanLimit {
+		fs.ix, fs.m = ix, map[int][]farPair{}
 	}
 	fan := make([]farPair, ix.Len())
 	for k := range fan {
 		fan[k].d = math.NaN()
 	}
-	(*fs)[a] = fan
+	fs.m[a] = fan
 	return fan
 }
 
@@ -1238,8 +1250,16 @@ func pairAt(ix *geodesy.Index, fan []farPair, alat, alon float64, k int) farPair
 	return p
 }
 
+// farPruneMin is the fewest candidates of a sparse super-tile for which
+// farPrune is tried where every candidate lies beyond maxTaylorDist: our
+// choice (it costs a geodesic, and saves one per site left out at each
+// anchor).
+const farPruneMin = 4
+
 // farPrune keeps, of a super-tile's candidates (more than maxCandidates:
-// dense training points), those that can be nearest to one of its cells,
+// dense training points; with farOnly, at least farPruneMin, every one
+// beyond maxTaylorDist from every cell), those that can be nearest to one
+// of its cells,
 // so that the super-tile is bracketed as a sparse one (chords, then
 // anchors) instead of computed cell by cell from denseSites' list (whose
 // chords end at 6000 km). It reports false, leaving b.cands as they were,
@@ -1287,7 +1307,7 @@ func pairAt(ix *geodesy.Index, fan []farPair, alat, alon float64, k int) farPair
 //	sin^2(theta/2) <= sin((D+dr)/2b) sin((D-dr)/2b) / (sin(r_j/b) sin(r_k/b)) <= sin^2(D/2b) / (sin(r_j/b) sin(r_k/b)),
 //
 // dr = r_j - r_k (|dr| <= D), the last step as sin x sin y <= sin^2((x+y)/2).
-func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64) bool {
+func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOnly bool) bool {
 	if !st.ok {
 		return false
 	}
@@ -1336,7 +1356,7 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64) bool 
 	}
 	b.sc.farLo, b.sc.farHi = lo, hi
 	r1, r2 := slices.Min(lo)-st.tmax, slices.Max(hi)+st.tmax
-	if !(r1 > 0 && r2 <= maxFarDist) {
+	if !(r1 > 0 && r2 <= maxFarDist) || farOnly && r1 < maxTaylorDist {
 		return false
 	}
 	// T G with 2 sin(D/2b) <= D/b.
@@ -1628,11 +1648,17 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 		c0 = -1
 	}
 	if m.far {
+		// Both bounds times the largest 1 - f'^2 over the range of f',
+		// [c0 + t A q, c0 + t B q]: q first 1, then twice from the last.
+		q := 1.0
+		for range 2 {
+			q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+		}
 		base, half := m.f0+t*c0, t*t/2
-		if l := base + m.hA*half - margin; l > lo {
+		if l := base + m.hA*q*half - margin; l > lo {
 			lo = l
 		}
-		if h := base + m.hB*half + margin; h < hi {
+		if h := base + m.hB*q*half + margin; h < hi {
 			hi = h
 		}
 		return lo, hi
@@ -1701,11 +1727,15 @@ func taylorRow(m *anchorSite, ts, sa, ca, lo, hi []float64) {
 			c0 = -1
 		}
 		if m.far {
+			q := 1.0
+			for range 2 {
+				q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+			}
 			base, half := f0+t*c0, t*t/2
-			if v := base + m.hA*half - margin; v > l {
+			if v := base + m.hA*q*half - margin; v > l {
 				l = v
 			}
-			if v := base + m.hB*half + margin; v < h {
+			if v := base + m.hB*q*half + margin; v < h {
 				h = v
 			}
 			lo[x], hi[x] = l, h
