@@ -245,6 +245,10 @@ type Grid struct {
 	// datum), the square metres of true area per square CRS unit of each
 	// row (sphereRowFactors); nil when the planar area is the true area.
 	rowFactor []float64
+	// edges holds, on an equal-area world map whose outline crosses the
+	// grid, the cells the outline cuts and the planar area of their part
+	// on the map (mapedge.go); nil on other grids.
+	edges *mapEdges
 	// areaRange caches CellAreaRange.
 	areaRange  sync.Once
 	minCellKm2 float64
@@ -459,6 +463,10 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 				g.EqualArea, g.unitArea = false, 0
 				return g, nil
 			}
+		}
+		g.setMapEdges()
+		if g.edges != nil {
+			g.AreaMethod += fmt.Sprintf("; cells cut by the map's outline take the area of their part on the map (outline within %.3g m)", g.edges.tol*g.unitM())
 		}
 		return g, nil
 	}
@@ -813,23 +821,28 @@ func (g *Grid) RowLonLat(row int, lons, lats []float64) {
 // For latitude-longitude grids this is the exact area on the WGS84
 // ellipsoid of the quadrangle between the cell's bounding parallels and
 // meridians (geodesy.CellArea). For equal-area projections it is the planar
-// cell area. For other projections it is the planar area times the ratio of
-// true to planar area of the cell's block of cells, where the true area of
-// a block comes from the ellipsoidal area of its outline (densified along
-// the block edges) after transforming to WGS84; on grids of more than about
-// a million cells, whose blocks hold several cells, the ratio is
-// interpolated bilinearly between the centres of the blocks around the
-// cell.
+// cell area, and for a cell cut by the outline of a world map (Mollweide,
+// Equal Earth, ...) the planar area of its part on the map (mapedge.go);
+// cells wholly off the map keep their planar area. For other projections
+// it is the planar area times the ratio of true to planar area of the
+// cell's block of cells, where the true area of a block comes from the
+// ellipsoidal area of its outline (densified along the block edges) after
+// transforming to WGS84; on grids of more than about a million cells,
+// whose blocks hold several cells, the ratio is interpolated bilinearly
+// between the centres of the blocks around the cell.
 func (g *Grid) RowAreas(row int, dst []float64) []float64 {
 	return g.RowAreasRange(row, 0, g.Width, dst)
 }
 
-// CellAreaRange returns the smallest and the largest cell area of the
-// grid in km^2 (computed once): on a latitude-longitude grid those of the
-// rows farthest from and nearest to the equator; on an equal-area grid the
-// planar area (times each row's factor on a sphere-based one); otherwise
-// the planar area times the smallest and largest block ratio (cells whose
-// ratio is interpolated between blocks lie between those).
+// CellAreaRange returns the smallest and the largest area of a whole
+// cell of the grid in km^2 (computed once): on a latitude-longitude grid
+// those of the rows farthest from and nearest to the equator; on an
+// equal-area grid the planar area (times each row's factor on a
+// sphere-based one); otherwise the planar area times the smallest and
+// largest block ratio (cells whose ratio is interpolated between blocks
+// lie between those). Cells cut by a world map's outline are smaller: the
+// range is that of the whole cells, which AreaUnits sizes its units by
+// (a sliver of a cell at the map's edge would otherwise set them).
 func (g *Grid) CellAreaRange() (lo, hi float64) {
 	g.areaRange.Do(func() {
 		var one [1]float64
@@ -846,7 +859,7 @@ func (g *Grid) CellAreaRange() (lo, hi float64) {
 				g.minCellKm2, g.maxCellKm2 = math.Min(g.minCellKm2, a), math.Max(g.maxCellKm2, a)
 			}
 		case g.EqualArea && g.rowFactor == nil:
-			g.minCellKm2 = at(0)
+			g.minCellKm2 = g.wholeCellArea(0)
 			g.maxCellKm2 = g.minCellKm2
 		default:
 			f := g.rowFactor
@@ -864,15 +877,49 @@ func (g *Grid) CellAreaRange() (lo, hi float64) {
 	return g.minCellKm2, g.maxCellKm2
 }
 
+// RowCellsEqual reports whether the cells c0 <= c < c1 of row all have
+// one area: on a latitude-longitude grid always, on an equal-area grid
+// unless the outline of a world map cuts one of them (Grid.edges), on
+// other projections never (each cell has its own factor).
+func (g *Grid) RowCellsEqual(row, c0, c1 int) bool {
+	switch {
+	case g.Geographic:
+		return true
+	case !g.EqualArea:
+		return false
+	}
+	return !g.edges.cut(row, c0, c1)
+}
+
 // rowArea returns the area of every cell of row when all of them have the
-// same area (latitude-longitude and equal-area grids): the value
-// RowAreasRange would repeat.
+// same area (latitude-longitude grids, and equal-area grids on the rows
+// no world map's outline cuts): the value RowAreasRange would repeat.
 func (g *Grid) rowArea(row int) (float64, bool) {
-	if !g.Geographic && !g.EqualArea {
+	if !g.RowCellsEqual(row, 0, g.Width) {
 		return 0, false
 	}
 	var one [1]float64
 	return g.RowAreasRange(row, 0, 1, one[:0])[0], true
+}
+
+// areaScale returns, on an equal-area grid, the square metres of true
+// area per square CRS unit of row: the row's factor on a sphere-based
+// projection, else the unit's square.
+func (g *Grid) areaScale(row int) float64 {
+	switch {
+	case g.rowFactor != nil:
+		return g.rowFactor[row]
+	case g.unitArea != 0:
+		return g.unitArea
+	}
+	return 1
+}
+
+// wholeCellArea returns, on an equal-area grid, the area in km^2 of a
+// whole cell of row (one the map's outline does not cut).
+func (g *Grid) wholeCellArea(row int) float64 {
+	gt := g.GeoTransform
+	return math.Abs(gt[1]*gt[5]) * g.areaScale(row) / 1e6
 }
 
 // RowAreasRange is RowAreas for the cells c0 <= c < c1 of row only:
@@ -895,14 +942,13 @@ func (g *Grid) RowAreasRange(row, c0, c1 int, dst []float64) []float64 {
 	}
 	planar := math.Abs(gt[1]*gt[5]) / 1e6
 	if g.EqualArea {
-		if g.unitArea != 0 {
-			planar = math.Abs(gt[1]*gt[5]) * g.unitArea / 1e6
-		}
-		if g.rowFactor != nil {
-			planar = math.Abs(gt[1]*gt[5]) * g.rowFactor[row] / 1e6
-		}
+		planar = g.wholeCellArea(row)
 		for i := range dst {
 			dst[i] = planar
+		}
+		if g.edges != nil {
+			// Cells the map's outline cuts: their part on the map.
+			g.edges.fill(row, c0, c1, g.areaScale(row)/1e6, dst)
 		}
 		return dst
 	}

@@ -142,8 +142,10 @@ func TestSphereEqualArea(t *testing.T) {
 			if got := row[tc.c]; math.Abs(got/tc.want-1) > 1e-8 {
 				t.Errorf("cell area %.12g km2, want %.12g (true WGS84 area; planar %g)", got, tc.want, tc.planar)
 			}
-			if !azimuthal && row[0] != row[tc.c] {
-				t.Errorf("cells of one row differ in area: %.12g and %.12g", row[0], row[tc.c])
+			// Whole cells of one row have one area (the cells a world
+			// map's outline cuts at a row's ends have less: TestMapEdgeCells).
+			if mid := g.Width / 2; !azimuthal && row[mid] != row[tc.c] {
+				t.Errorf("cells of one row differ in area: %.12g and %.12g", row[mid], row[tc.c])
 			}
 			if math.Abs(tc.want-tc.planar) < 1e-6 && row[tc.c] != tc.planar {
 				t.Errorf("ellipsoidal equal-area cell %.15g km2, want its planar area %g exactly", row[tc.c], tc.planar)

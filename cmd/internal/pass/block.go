@@ -195,8 +195,9 @@ type workerState struct {
 	// The block's valid cells, when the pass records them (scoreBlock).
 	validRuns, validOff []int32
 
-	// rowW[row] is 1 + the weight of every cell of row on grids whose
-	// rows have one cell area (latitude-longitude and equal-area), 0 until
+	// rowW[row] is 1 + the weight of every whole cell of row on grids
+	// whose rows have one cell area (latitude-longitude and equal-area;
+	// cells a world map's outline cuts are weighed one by one), 0 until
 	// computed; weights holds filled throughout its first wlen entries
 	// (filled < 0: no such fill).
 	rowW   []int64
@@ -206,9 +207,11 @@ type workerState struct {
 
 // rowWeights returns the integer area weights of cells c0 <= c < c1 of
 // row (RowWeights), computed once per row on grids whose rows have one
-// cell area, and that one weight, or -1 when they differ.
+// cell area, and that one weight, or -1 when they differ (on projections
+// that are not equal-area, and where a world map's outline cuts one of
+// the cells: extent.Grid.RowCellsEqual).
 func (ws *workerState) rowWeights(g *extent.Grid, row, c0, c1 int) ([]int64, int64) {
-	if !g.Geographic && !g.EqualArea {
+	if !g.RowCellsEqual(row, c0, c1) {
 		ws.filled = -1
 		ws.areas, ws.weights = RowWeights(g, row, c0, c1, ws.areas, ws.weights)
 		return ws.weights, -1

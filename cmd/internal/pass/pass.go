@@ -959,6 +959,11 @@ func RowWeights(g *extent.Grid, row, c0, c1 int, areas []float64, weights []int6
 	for x, a := range areas {
 		if a != lastA { // constant along rows of most grids
 			lastA, lastW = a, int64(math.Round(a*units))
+			if lastW < 1 && a > 0 {
+				// A sliver of a cell at a world map's edge still weighs:
+				// the pass takes a weight of 0 for no cell at all.
+				lastW = 1
+			}
 		}
 		weights[x] = lastW
 	}
