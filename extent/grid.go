@@ -1177,51 +1177,59 @@ type blockFactors struct {
 	err         error
 }
 
-// factorCache holds the block factors of the last few grid geometries
-// computed, so that the grids a run opens on one geometry (the memory
-// estimate's, the study's and each model's) compute them once: on a
-// grid of a million blocks that takes seconds. Keyed by the CRS's WKT,
-// the geotransform and the size.
-var factorCache struct {
+// geometryCache holds values computed per grid geometry (the CRS's WKT,
+// the geotransform and the size) for the last few geometries, so that the
+// grids a run opens on one geometry (the memory estimate's, the study's
+// and each model's) compute them once, even when they open at once.
+type geometryCache[T any] struct {
 	sync.Mutex
 	keys    []string
-	entries []*factorEntry
+	entries []*geometryEntry[T]
 }
 
-// factorCacheSize is how many geometries factorCache keeps: enough for
-// the studies a batch runs at once (our choice; each holds at most about
-// 8 MB).
-const factorCacheSize = 4
-
-type factorEntry struct {
+type geometryEntry[T any] struct {
 	once sync.Once
-	f    blockFactors
+	v    T
 }
 
-// computeFactors fills blockFactor for projected grids that are not
-// equal-area, from factorCache or by makeFactors, and FactorTime.
-func (g *Grid) computeFactors() error {
+// geometryCacheSize is how many geometries a geometryCache keeps: enough
+// for the studies a batch runs at once (our choice; block factors hold at
+// most about 8 MB each, map edges less).
+const geometryCacheSize = 4
+
+// get returns the value for g's geometry, computing it with compute once.
+func (c *geometryCache[T]) get(g *Grid, compute func() T) T {
 	key := fmt.Sprintf("%s\x00%v\x00%dx%d", g.WKT, g.GeoTransform, g.Width, g.Height)
-	factorCache.Lock()
-	var e *factorEntry
-	for i, k := range factorCache.keys {
+	c.Lock()
+	var e *geometryEntry[T]
+	for i, k := range c.keys {
 		if k == key {
-			e = factorCache.entries[i]
+			e = c.entries[i]
 			break
 		}
 	}
 	if e == nil {
-		e = &factorEntry{}
-		factorCache.keys = append(factorCache.keys, key)
-		factorCache.entries = append(factorCache.entries, e)
-		if n := len(factorCache.keys); n > factorCacheSize {
-			factorCache.keys = append([]string(nil), factorCache.keys[n-factorCacheSize:]...)
-			factorCache.entries = append([]*factorEntry(nil), factorCache.entries[n-factorCacheSize:]...)
+		e = &geometryEntry[T]{}
+		c.keys = append(c.keys, key)
+		c.entries = append(c.entries, e)
+		if n := len(c.keys); n > geometryCacheSize {
+			c.keys = append([]string(nil), c.keys[n-geometryCacheSize:]...)
+			c.entries = append([]*geometryEntry[T](nil), c.entries[n-geometryCacheSize:]...)
 		}
 	}
-	factorCache.Unlock()
-	e.once.Do(func() { e.f = g.makeFactors() })
-	f := e.f
+	c.Unlock()
+	e.once.Do(func() { e.v = compute() })
+	return e.v
+}
+
+// factorCache holds the block factors of the last few grid geometries: on
+// a grid of a million blocks they take seconds.
+var factorCache geometryCache[blockFactors]
+
+// computeFactors fills blockFactor for projected grids that are not
+// equal-area, from factorCache or by makeFactors, and FactorTime.
+func (g *Grid) computeFactors() error {
+	f := factorCache.get(g, g.makeFactors)
 	if f.err != nil {
 		return f.err
 	}

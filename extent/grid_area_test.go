@@ -135,7 +135,7 @@ func TestWorldMapCornersAdvice(t *testing.T) {
 // factors once (the second shares the first's, as the memory estimate's,
 // the study's and each model's grid of a run do: before, each computed
 // them, about 6 s apiece on a UTM grid of 2000 x 2000 cells), another
-// geometry gets its own, the cache keeps at most factorCacheSize
+// geometry gets its own, the cache keeps at most geometryCacheSize
 // geometries, and the factors are the same computed on one worker as on
 // several.
 func TestBlockFactorsShared(t *testing.T) {
@@ -160,13 +160,13 @@ func TestBlockFactorsShared(t *testing.T) {
 	if g3 := open(moved); &g3.blockFactor[0] == &g1.blockFactor[0] {
 		t.Errorf("a grid one row to the north shares the factors of the first")
 	}
-	for k := 0; k < factorCacheSize+2; k++ {
+	for k := 0; k < geometryCacheSize+2; k++ {
 		other := gt
 		other[0] += float64(k+2) * 2000
 		open(other)
 	}
-	if n := len(factorCache.keys); n > factorCacheSize || n != len(factorCache.entries) {
-		t.Errorf("cache holds %d keys and %d entries, want at most %d", n, len(factorCache.entries), factorCacheSize)
+	if n := len(factorCache.keys); n > geometryCacheSize || n != len(factorCache.entries) {
+		t.Errorf("cache holds %d keys and %d entries, want at most %d", n, len(factorCache.entries), geometryCacheSize)
 	}
 	prev := runtime.GOMAXPROCS(1)
 	one := g1.makeFactors()

@@ -1,10 +1,10 @@
 package extent
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
-	"sync"
 )
 
 // A world map in an equal-area projection (Mollweide, Equal Earth,
@@ -71,50 +71,20 @@ func (e *mapEdges) fill(row, c0, c1 int, scale float64, dst []float64) {
 	}
 }
 
-// edgeCache holds the map edges of the last few grid geometries, so that
-// the grids a run opens on one geometry compute them once (as factorCache
-// does for the block factors). Keyed by the CRS's WKT, the geotransform
-// and the size.
-var edgeCache struct {
-	sync.Mutex
-	keys    []string
-	entries []*edgeEntry
-}
-
-type edgeEntry struct {
-	once sync.Once
-	e    *mapEdges
-}
+// edgeCache holds the map edges of the last few grid geometries (see
+// geometryCache).
+var edgeCache geometryCache[*mapEdges]
 
 // setMapEdges sets g.edges on an equal-area grid whose CRS maps the whole
 // Earth inside an outline that crosses the grid; nil otherwise.
 func (g *Grid) setMapEdges() {
-	key := fmt.Sprintf("%s\x00%v\x00%dx%d", g.WKT, g.GeoTransform, g.Width, g.Height)
-	edgeCache.Lock()
-	var ent *edgeEntry
-	for i, k := range edgeCache.keys {
-		if k == key {
-			ent = edgeCache.entries[i]
-			break
-		}
-	}
-	if ent == nil {
-		ent = &edgeEntry{}
-		edgeCache.keys = append(edgeCache.keys, key)
-		edgeCache.entries = append(edgeCache.entries, ent)
-		if n := len(edgeCache.keys); n > factorCacheSize {
-			edgeCache.keys = append([]string(nil), edgeCache.keys[n-factorCacheSize:]...)
-			edgeCache.entries = append([]*edgeEntry(nil), edgeCache.entries[n-factorCacheSize:]...)
-		}
-	}
-	edgeCache.Unlock()
-	ent.once.Do(func() {
+	g.edges = edgeCache.get(g, func() *mapEdges {
 		xs, ys, tol, ok := g.worldOutline()
-		if ok {
-			ent.e = cutCells(g.GeoTransform, g.Width, g.Height, xs, ys, tol)
+		if !ok {
+			return nil
 		}
+		return cutCells(g.GeoTransform, g.Width, g.Height, xs, ys, tol)
 	})
-	g.edges = ent.e
 }
 
 // unitM returns the length in metres of the grid CRS's linear unit.
@@ -415,7 +385,7 @@ func cutCells(gt [6]float64, w, h int, xs, ys []float64, tol float64) *mapEdges 
 				}
 			}
 			slices.SortFunc(cross, func(p, q slabEdge) int {
-				return cmpFloat(p.x0+p.x1, q.x0+q.x1)
+				return cmp.Compare(p.x0+p.x1, q.x0+q.x1)
 			})
 			for p := 0; p+1 < len(cross); p += 2 {
 				L, R := cross[p], cross[p+1]
@@ -524,15 +494,4 @@ func trapezoidStrip(hgt, l0, l1, r0, r1, xa, xb float64) float64 {
 		prev = cur
 	}
 	return s * hgt
-}
-
-// cmpFloat orders two float64s.
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }

@@ -1157,12 +1157,7 @@ const maxDense = 256
 func (b *bracketer) denseSites(clat, clon float64, st *stencil, rho float64) bool {
 	b.measured = b.measured[:0]
 	pc := geodesy.ECEF(clat, clon)
-	first, cc0 := -1, math.Inf(1)
-	for q, k := range b.cands {
-		if cc := dist3(pc, b.ll.sites[k]); cc < cc0 {
-			first, cc0 = q, cc
-		}
-	}
+	first, cc0 := b.chordNearest(pc)
 	if first < 0 {
 		return false
 	}
@@ -1196,6 +1191,19 @@ func (b *bracketer) denseSites(clat, clon float64, st *stencil, rho float64) boo
 	}
 	sortSites(b.measured)
 	return true
+}
+
+// chordNearest returns the position in b.cands of the candidate of
+// shortest chord from pc (the first such) and that chord; -1 and +Inf
+// with no candidate.
+func (b *bracketer) chordNearest(pc [3]float64) (first int, cc0 float64) {
+	first, cc0 = -1, math.Inf(1)
+	for q, k := range b.cands {
+		if cc := dist3(pc, b.ll.sites[k]); cc < cc0 {
+			first, cc0 = q, cc
+		}
+	}
+	return first, cc0
 }
 
 // farPair is the geodesic from one site to another: its length d and the
@@ -1312,47 +1320,16 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOn
 		return false
 	}
 	pc := geodesy.ECEF(clat, clon)
-	first, cc0 := -1, math.Inf(1)
-	for q, k := range b.cands {
-		if cc := dist3(pc, b.ll.sites[k]); cc < cc0 {
-			first, cc0 = q, cc
-		}
-	}
+	first, _ := b.chordNearest(pc)
 	if first < 0 {
 		return false
 	}
 	s0 := b.cands[first]
 	slat, slon := b.f.ix.Site(s0)
 	f0, _, az2 := geodesy.Inverse(clat, clon, slat, slon)
-	sz, cz := math.Sincos(az2 * math.Pi / 180)
-	fan := b.sc.fans.fan(b.f.ix, s0)
-	// The longest geodesic from s0 to a candidate, for one [A, B] that
-	// holds for all (both bounds only loosen as d grows).
-	dmax := 0.0
-	for _, k := range b.cands {
-		dmax = max(dmax, pairAt(b.f.ix, fan, slat, slon, k).d)
-	}
-	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
+	lo, hi, fan, j, ok := siteBrackets(b.f.ix, &b.sc.fans, s0, f0, az2, b.cands, b.sc.farLo[:0], b.sc.farHi[:0])
+	if !ok {
 		return false
-	}
-	a, bb, ok := farHessian(farCot(f0), f0, dmax)
-	if !ok && dmax > 0 {
-		return false
-	}
-	margin := 1e-3 + 1e-9*f0
-	lo, hi := b.sc.farLo[:0], b.sc.farHi[:0]
-	j := -1
-	for _, k := range b.cands {
-		p := fan[k]
-		l, h := f0-margin, f0+margin
-		if p.d > 0 {
-			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2
-			l = max(l-p.d, base+a*half-margin)
-			h = min(h+p.d, base+bb*half+margin)
-		}
-		if lo, hi = append(lo, l), append(hi, h); j < 0 || h < hi[j] {
-			j = len(hi) - 1
-		}
 	}
 	b.sc.farLo, b.sc.farHi = lo, hi
 	r1, r2 := slices.Min(lo)-st.tmax, slices.Max(hi)+st.tmax
@@ -1373,6 +1350,49 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOn
 	}
 	b.cands = append(b.cands[:0], b.kept...)
 	return true
+}
+
+// siteBrackets appends to lo and hi, for each site ks[q] of ix, a bracket
+// of its distance from a point c, from the site s0 measured at c (the
+// geodesic from c to s0 has length f0 and azimuth az2 at s0), without a
+// geodesic of its own (see farPrune): F0 + d cos(beta - az2) + [A, B]
+// d^2/2, widened by 1 mm + 1e-9 F0 and intersected with F0 -+ d, A and B
+// those of the longest d. It returns them, the fan of s0 (its geodesics to
+// the sites) and the q of the smallest upper end (the first such); ok is
+// false, and nothing else is set, when the bound does not apply (a site d
+// >= F0/2 from s0, or F0 + d beyond maxFarDist).
+func siteBrackets(ix *geodesy.Index, fans *siteFans, s0 int, f0, az2 float64, ks []int, lo, hi []float64) (los, his []float64, fan []farPair, j int, ok bool) {
+	slat, slon := ix.Site(s0)
+	sz, cz := math.Sincos(az2 * math.Pi / 180)
+	fan = fans.fan(ix, s0)
+	// The longest geodesic from s0 to a site, for one [A, B] that holds
+	// for all (both bounds only loosen as d grows).
+	dmax := 0.0
+	for _, k := range ks {
+		dmax = max(dmax, pairAt(ix, fan, slat, slon, k).d)
+	}
+	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
+		return lo, hi, nil, 0, false
+	}
+	a, bb, hok := farHessian(farCot(f0), f0, dmax)
+	if !hok && dmax > 0 {
+		return lo, hi, nil, 0, false
+	}
+	margin := 1e-3 + 1e-9*f0
+	n := len(lo)
+	for _, k := range ks {
+		p := fan[k]
+		l, h := f0-margin, f0+margin
+		if p.d > 0 {
+			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2
+			l = max(l-p.d, base+a*half-margin)
+			h = min(h+p.d, base+bb*half+margin)
+		}
+		if lo, hi = append(lo, l), append(hi, h); h < hi[n+j] {
+			j = len(hi) - 1 - n
+		}
+	}
+	return lo, hi, fan, j, true
 }
 
 // denseCell computes block cell i (entry j of the super-tile's stencil) of

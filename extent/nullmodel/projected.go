@@ -52,7 +52,9 @@ type projScratch struct {
 	later      []projLater // cells to compute at their exact centres
 	fans       siteFans    // prunable's geodesics between sites
 	skip       []bool      // prunable's verdicts, by chord order
-	// prunable's brackets of each candidate's distance from the anchor
+	// prunable's candidates (by chord) and the brackets of their distances
+	// from the anchor
+	siteKs           []int
 	pruneLo, pruneHi []float64
 }
 
@@ -1178,34 +1180,14 @@ func (b *projBracketer) prunable(sites []projSite, alat, alon, tmax, epmax float
 	ix := b.f.ix
 	s0 := &sites[0]
 	f0, _, az2 := geodesy.Inverse(alat, alon, s0.lat, s0.lon)
-	sz, cz := math.Sincos(az2 * math.Pi / 180)
-	fan := sc.fans.fan(ix, s0.k)
-	dmax := 0.0
+	ks := sc.siteKs[:0]
 	for q := range sites {
-		dmax = max(dmax, pairAt(ix, fan, s0.lat, s0.lon, sites[q].k).d)
+		ks = append(ks, sites[q].k)
 	}
-	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
+	sc.siteKs = ks
+	lo, hi, fan, j, ok := siteBrackets(ix, &sc.fans, s0.k, f0, az2, ks, sc.pruneLo[:0], sc.pruneHi[:0])
+	if !ok {
 		return nil
-	}
-	a, bb, ok := farHessian(farCot(f0), f0, dmax)
-	if !ok && dmax > 0 {
-		return nil
-	}
-	margin := 1e-3 + 1e-9*f0
-	lo, hi := sc.pruneLo[:0], sc.pruneHi[:0]
-	j := 0
-	for q := range sites {
-		p := fan[sites[q].k]
-		l, h := f0-margin, f0+margin
-		if p.d > 0 {
-			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2
-			l = max(l-p.d, base+a*half-margin)
-			h = min(h+p.d, base+bb*half+margin)
-		}
-		lo, hi = append(lo, l), append(hi, h)
-		if h < hi[j] {
-			j = q
-		}
 	}
 	sc.pruneLo, sc.pruneHi = lo, hi
 	r1, r2 := slices.Min(lo), slices.Max(hi)
