@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"areasweep/extent/geodesy"
@@ -392,17 +393,21 @@ func BenchmarkFieldBracketWorld(b *testing.B) {
 			b.Fatal(err)
 		}
 		layout := newFloorBins(l)
-		lo, hi := make([]float64, 240*240), make([]float64, 240*240)
-		b.Run(tc.name, func(b *testing.B) {
-			exact := 0
-			c0 := cpuNanos(b)
-			for b.Loop() {
-				exact = bracketBlocks(f, w, h, layout, lo, hi)
-			}
-			b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
-			b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
-		})
+		b.Run(tc.name, func(b *testing.B) { benchBracket(b, f, w, h, layout) })
 	}
+}
+
+// benchBracket times bracketBlocks on the w x h grid of f: CPU ns per cell
+// and the share of cells computed exactly.
+func benchBracket(b *testing.B, f *Field, w, h int, layout Binner) {
+	lo, hi := make([]float64, 240*240), make([]float64, 240*240)
+	exact := 0
+	c0 := cpuNanos(b)
+	for b.Loop() {
+		exact = bracketBlocks(f, w, h, layout, lo, hi)
+	}
+	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
+	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
 }
 
 // TestHessianBounds checks the cheap forms of the Hessian comparison
@@ -756,16 +761,41 @@ func denseGrid(tb testing.TB, n, side int, deg float64) (*Field, *geodesy.Index)
 func TestDenseSitesHoldNearest(t *testing.T) {
 	const side, deg = 240, 0.04
 	f, ix := denseGrid(t, 400, side, deg)
-	ll := f.ll
-	b := bracketer{f: f, ll: ll}
-	tiles, lists, kept, cands := 0, 0, 0, 0
-	for sr := 0; sr < side/SuperTile; sr++ {
-		st := ll.stencil(SuperTile/2, sr)
+	tiles, lists, kept, cands := holdsNearest(t, f, ix, side, side, func(b *bracketer, clat, clon float64, st *stencil, rho float64) []int {
 		if !st.ok {
-			t.Fatalf("row %d: no stencil", sr)
+			t.Fatalf("super-tile at (%v, %v): no stencil", clat, clon)
 		}
+		if !b.denseSites(clat, clon, st, rho) {
+			return nil
+		}
+		var ks []int
+		for _, m := range b.measured {
+			ks = append(ks, m.k)
+		}
+		return ks
+	})
+	t.Logf("%d super-tiles with more than %d candidates, %d with a list: %.1f sites kept of %.1f on average",
+		tiles, maxCandidates, lists, float64(kept)/float64(lists), float64(cands)/float64(lists))
+	if tiles < 200 || lists < tiles*3/4 || kept*10 > cands {
+		t.Fatalf("%d super-tiles with many candidates, %d lists keeping %d of %d sites: not the dense case", tiles, lists, kept, cands)
+	}
+}
+
+// holdsNearest calls keep at every super-tile of the w x h grid of f
+// whose candidates (as Bracket finds them, in b.cands) are more than
+// maxCandidates, and checks, at every cell of each super-tile where keep
+// gives a list of sites (non-nil), that the smallest geodesic to them is
+// the exact distance of ix.Nearest at the cell, bit for bit. It returns
+// the number of such super-tiles, of lists, of sites kept and of
+// candidates in the super-tiles with a list.
+func holdsNearest(t *testing.T, f *Field, ix *geodesy.Index, w, h int, keep func(b *bracketer, clat, clon float64, st *stencil, rho float64) []int) (tiles, lists, kept, cands int) {
+	t.Helper()
+	ll := f.ll
+	b := bracketer{f: f, ll: ll, sc: new(scratch)}
+	for sr := 0; sr < h/SuperTile; sr++ {
+		st := ll.stencil(SuperTile/2, sr)
 		rho := st.tmax*1.02 + 1
-		for sc := 0; sc < side/SuperTile; sc++ {
+		for sc := 0; sc < w/SuperTile; sc++ {
 			cr, cc := sr*SuperTile+SuperTile/2, sc*SuperTile+SuperTile/2
 			clat, clon := ll.lat(cr), ll.lon(cc)
 			_, d1 := ix.NearestBounds(clat, clon, 0)
@@ -774,32 +804,31 @@ func TestDenseSitesHoldNearest(t *testing.T) {
 				continue
 			}
 			tiles++
-			if !b.denseSites(clat, clon, st, rho) {
+			n := len(b.cands)
+			ks := keep(&b, clat, clon, st, rho)
+			if ks == nil {
 				continue
 			}
 			lists++
-			kept += len(b.measured)
-			cands += len(b.cands)
+			kept += len(ks)
+			cands += n
 			for r := sr * SuperTile; r < (sr+1)*SuperTile; r++ {
 				for c := sc * SuperTile; c < (sc+1)*SuperTile; c++ {
 					lat, lon := ll.lat(r), ll.lon(c)
 					_, want := ix.Nearest(lat, lon, 0)
 					got := math.Inf(1)
-					for _, m := range b.measured {
-						got = math.Min(got, geodesy.Distance(lat, lon, m.slat, m.slon))
+					for _, k := range ks {
+						slat, slon := ix.Site(k)
+						got = math.Min(got, geodesy.Distance(lat, lon, slat, slon))
 					}
 					if math.Float64bits(got) != math.Float64bits(want) {
-						t.Fatalf("cell (%d, %d): %v over the %d sites kept of %d, Nearest %v", c, r, got, len(b.measured), len(b.cands), want)
+						t.Fatalf("cell (%d, %d): %v over the %d sites kept of %d, Nearest %v", c, r, got, len(ks), n, want)
 					}
 				}
 			}
 		}
 	}
-	t.Logf("%d super-tiles with more than %d candidates, %d with a list: %.1f sites kept of %.1f on average",
-		tiles, maxCandidates, lists, float64(kept)/float64(lists), float64(cands)/float64(lists))
-	if tiles < 200 || lists < tiles*3/4 || kept*10 > cands {
-		t.Fatalf("%d super-tiles with many candidates, %d lists keeping %d of %d sites: not the dense case", tiles, lists, kept, cands)
-	}
+	return tiles, lists, kept, cands
 }
 
 // TestFarPruneHoldsNearest checks farPrune, which keeps of a super-tile's
@@ -843,44 +872,12 @@ func TestFarPruneHoldsNearest(t *testing.T) {
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			ll, ix := tc.f.ll, tc.ix
-			b := bracketer{f: tc.f, ll: ll, sc: new(scratch)}
-			tiles, lists, kept, cands := 0, 0, 0, 0
-			for sr := 0; sr < tc.h/SuperTile; sr++ {
-				st := ll.stencil(SuperTile/2, sr)
-				rho := st.tmax*1.02 + 1
-				for sc := 0; sc < tc.w/SuperTile; sc++ {
-					cr, cc := sr*SuperTile+SuperTile/2, sc*SuperTile+SuperTile/2
-					clat, clon := ll.lat(cr), ll.lon(cc)
-					_, d1 := ix.NearestBounds(clat, clon, 0)
-					b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
-					if len(b.cands) <= maxCandidates {
-						continue
-					}
-					tiles++
-					n := len(b.cands)
-					if !b.farPrune(clat, clon, st, rho, false) {
-						continue
-					}
-					lists++
-					kept += len(b.cands)
-					cands += n
-					for r := sr * SuperTile; r < (sr+1)*SuperTile; r++ {
-						for c := sc * SuperTile; c < (sc+1)*SuperTile; c++ {
-							lat, lon := ll.lat(r), ll.lon(c)
-							_, want := ix.Nearest(lat, lon, 0)
-							got := math.Inf(1)
-							for _, k := range b.cands {
-								slat, slon := ix.Site(k)
-								got = math.Min(got, geodesy.Distance(lat, lon, slat, slon))
-							}
-							if math.Float64bits(got) != math.Float64bits(want) {
-								t.Fatalf("cell (%d, %d): %v over the %d sites kept of %d, Nearest %v", c, r, got, len(b.cands), n, want)
-							}
-						}
-					}
+			tiles, lists, kept, cands := holdsNearest(t, tc.f, tc.ix, tc.w, tc.h, func(b *bracketer, clat, clon float64, st *stencil, rho float64) []int {
+				if !b.farPrune(clat, clon, st, rho, false) {
+					return nil
 				}
-			}
+				return slices.Clone(b.cands)
+			})
 			t.Logf("%d super-tiles with more than %d candidates, %d with a list: %d sites kept of %d", tiles, maxCandidates, lists, kept, cands)
 			if tiles == 0 || lists*2 < tiles {
 				t.Fatalf("%d super-tiles with many candidates, %d lists: farPrune not at work", tiles, lists)
@@ -969,16 +966,7 @@ func BenchmarkFieldBracketDense(b *testing.B) {
 			b.Fatal(err)
 		}
 		layout := newFloorBins(l)
-		lo, hi := make([]float64, 240*240), make([]float64, 240*240)
-		b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) {
-			exact := 0
-			c0 := cpuNanos(b)
-			for b.Loop() {
-				exact = bracketBlocks(f, side, side, layout, lo, hi)
-			}
-			b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(side*side), "cpu-ns/cell")
-			b.ReportMetric(float64(exact)/float64(side*side), "exact-share")
-		})
+		b.Run(fmt.Sprintf("sites=%d/cells=%d", sites, side*side), func(b *testing.B) { benchBracket(b, f, side, side, layout) })
 	}
 }
 

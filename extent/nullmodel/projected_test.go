@@ -308,15 +308,8 @@ func BenchmarkFieldBracketProjected(b *testing.B) {
 	want := make([]float64, w*h/64)
 	f.Distances(0, 0, w, h/64, nil, want)
 	layout := testLayout(b, want, f.FarthestBound(w, h, 64))
-	lo, hi := make([]float64, 240*240), make([]float64, 240*240)
 	b.ReportAllocs()
-	exact := 0
-	c0 := cpuNanos(b)
-	for b.Loop() {
-		exact = bracketBlocks(f, w, h, layout, lo, hi)
-	}
-	b.ReportMetric(float64(cpuNanos(b)-c0)/float64(b.N)/float64(w*h), "cpu-ns/cell")
-	b.ReportMetric(float64(exact)/float64(w*h), "exact-share")
+	benchBracket(b, f, w, h, layout)
 }
 
 // TestECEFLatLon checks ecefLatLon against projECEF at random points of
