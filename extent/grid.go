@@ -680,14 +680,65 @@ func (g *Grid) MinCellSideM() float64 {
 }
 
 // ToLonLat converts grid-CRS coordinates to WGS84 longitude and latitude.
-// Points that cannot be converted get NaN.
+// Points that cannot be converted get NaN, and so do points beyond the
+// outline of a world map that crosses the grid (dropOffMap). xs and ys may
+// be lons and lats.
 func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
+	if g.edges != nil && !g.Geographic {
+		bp := offMapPool.Get().(*[]float64)
+		buf := append((*bp)[:0], xs...)
+		buf = append(buf, ys...)
+		copy(lons, xs)
+		copy(lats, ys)
+		g.transform(g.toLL, lons, lats)
+		g.dropOffMap(buf[:len(xs)], buf[len(xs):], lons, lats)
+		*bp = buf
+		offMapPool.Put(bp)
+		return
+	}
 	copy(lons, xs)
 	copy(lats, ys)
 	if g.Geographic {
 		return
 	}
 	g.transform(g.toLL, lons, lats)
+}
+
+// offMapPool holds ToLonLat's copies of the points on grids with a world
+// map's outline.
+var offMapPool = sync.Pool{New: func() any { return new([]float64) }}
+
+// roundTripRelTol is how far, as a share of the shorter cell side, a
+// point's longitude and latitude may map back from where they came from
+// before dropOffMap takes it for a point off the map: our choice, far
+// above PROJ's round-trip error on the map (nanometres) and far below the
+// thousands of kilometres a wrapped point lands away.
+const roundTripRelTol = 1e-3
+
+// dropOffMap sets to NaN each point whose longitude and latitude (lons,
+// lats, from PROJ's inverse of (xs, ys)) do not map back to (xs, ys)
+// within roundTripRelTol of a cell side. On Equal Earth, Eckert IV or
+// sinusoidal world maps PROJ's inverse gives a point beyond the outline a
+// position on the other side of the Earth instead of failing (Equal Earth
+// (17,300 km, 8,000 km) came back as 79 W, 75 N), so a cell there with
+// data would be placed by the buffers and the distance-only null where it
+// is not; Mollweide's inverse fails there already.
+func (g *Grid) dropOffMap(xs, ys, lons, lats []float64) {
+	bp := offMapPool.Get().(*[]float64)
+	buf := append(append((*bp)[:0], lons...), lats...)
+	fx, fy := buf[:len(lons)], buf[len(lons):]
+	g.transform(g.frLL, fx, fy)
+	tol := roundTripRelTol * math.Min(math.Abs(g.GeoTransform[1]), math.Abs(g.GeoTransform[5]))
+	for i := range lons {
+		if math.IsNaN(lons[i]) {
+			continue
+		}
+		if !(math.Abs(fx[i]-xs[i]) <= tol && math.Abs(fy[i]-ys[i]) <= tol) {
+			lons[i], lats[i] = math.NaN(), math.NaN()
+		}
+	}
+	*bp = buf
+	offMapPool.Put(bp)
 }
 
 // FromLonLat converts WGS84 longitude and latitude to grid-CRS coordinates.

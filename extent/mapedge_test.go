@@ -338,3 +338,75 @@ func TestMapEdgeExtentArea(t *testing.T) {
 		t.Errorf("whole grid %.0f km2, not less than its whole cells' %.0f", a, b)
 	}
 }
+
+// TestMapEdgeOffMap checks that ToLonLat gives no position (NaN) to the
+// centres of cells beyond a world map's outline, which PROJ's inverse
+// wraps onto the other side of the Earth on Equal Earth and the
+// sinusoidal map (Mollweide's fails by itself), and the same position as
+// the plain transformation, bit for bit, to every centre inside it; the
+// centres within 1 km of the outline (where the ring's tolerance could
+// decide) are not asked. The outline is the one TestMapEdgeOutline checks.
+func TestMapEdgeOffMap(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		crs  string
+		gt   [6]float64
+		w, h int
+	}{
+		{"Mollweide 100 km", "ESRI:54009", [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}, 362, 182},
+		{"Equal Earth 100 km", "EPSG:8857", [6]float64{-17300000, 100000, 0, 8400000, 0, -100000}, 346, 168},
+		{"sinusoidal 100 km", "ESRI:54008", [6]float64{-20100000, 100000, 0, 10100000, 0, -100000}, 402, 202},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer g.Close()
+			xs, ys, _, ok := g.worldOutline()
+			if !ok || g.edges == nil {
+				t.Fatal("no outline")
+			}
+			lons, lats := make([]float64, g.Width), make([]float64, g.Width)
+			plon, plat := make([]float64, g.Width), make([]float64, g.Width)
+			in, off, wrapped := 0, 0, 0
+			for r := 0; r < g.Height; r++ {
+				g.RowLonLat(r, lons, lats)
+				for c := range plon {
+					plon[c], plat[c] = g.Centre(c, r)
+				}
+				g.transform(g.toLL, plon, plat)
+				_, yc := g.Centre(0, r)
+				cross := ringCrossings(xs, ys, yc)
+				for c := range lons {
+					x, _ := g.Centre(c, r)
+					near := false
+					for _, xc := range cross {
+						near = near || math.Abs(x-xc) < 1000
+					}
+					if near {
+						continue
+					}
+					if insideCrossings(cross, x) {
+						in++
+						if math.Float64bits(lons[c]) != math.Float64bits(plon[c]) || math.Float64bits(lats[c]) != math.Float64bits(plat[c]) {
+							t.Fatalf("cell (%d, %d) on the map: (%v, %v), the transformation gives (%v, %v)", c, r, lons[c], lats[c], plon[c], plat[c])
+						}
+						continue
+					}
+					off++
+					if !math.IsNaN(plon[c]) {
+						wrapped++
+					}
+					if !math.IsNaN(lons[c]) || !math.IsNaN(lats[c]) {
+						t.Fatalf("cell (%d, %d) off the map at (%v, %v): given (%v, %v)", c, r, x, yc, lons[c], lats[c])
+					}
+				}
+			}
+			t.Logf("%d cells on the map, %d off it (%d of them given a position by PROJ's inverse)", in, off, wrapped)
+			if in == 0 || off == 0 {
+				t.Fatal("the grid must hold cells on and off the map")
+			}
+		})
+	}
+}
