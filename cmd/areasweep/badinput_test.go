@@ -576,6 +576,14 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"occurrences crs geocentric", f.run("--occurrences-crs", "EPSG:4978"), 2, []string{"--occurrences-crs", `"EPSG:4978"`, "neither a geographic nor a projected CRS"}, "", ""},
 		{"occurrences crs vertical", f.run("--occurrences-crs", "EPSG:5703"), 2, []string{"--occurrences-crs", `"EPSG:5703"`, "neither a geographic nor a projected CRS"}, "", ""},
 		{"occurrences crs an unknown projection", f.run("--occurrences-crs", "+proj=garbage +foo"), 2, []string{"--occurrences-crs", "(Unknown projection)"}, "", ""},
+		// Points beyond a world map's outline: PROJ's inverse fails on
+		// Mollweide, and on Equal Earth gives a position on the other side
+		// of the Earth (the second point came back as 79 W, 75 N and would
+		// have been placed there).
+		{"occurrences beyond Mollweide's outline", f.withOcc(f.file("offmap_moll.csv", "x,y,role\n1557116.5,-325493.1,train\n18500000,100,test\n"), "--occurrences-crs", "ESRI:54009"), 2,
+			[]string{"offmap_moll.csv", "line 3 (18500000, 100)", "not on the Earth in ESRI:54009", "--occurrences-crs"}, "", ""},
+		{"occurrences beyond Equal Earth's outline", f.withOcc(f.file("offmap_ee.csv", "x,y,role\n1557116.5,-325493.1,train\n17300000,8000000,test\n"), "--occurrences-crs", "EPSG:8857"), 2,
+			[]string{"offmap_ee.csv", "line 3 (17300000, 8000000)", "not on the Earth in EPSG:8857", "beyond the outline of a world map"}, "", ""},
 		// Expat's words for an XML file cut short reached the user with
 		// GDAL's "ERROR parsing kml" and "XML parsing of GML file failed".
 		// libtiff's "Can not read directory count" reached the user.

@@ -534,7 +534,7 @@ func shortText(s string, n int) string {
 func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err error) {
 	o := s.o
 	geographic := true
-	var toLL *godal.Transform
+	var toLL, fromLL *godal.Transform
 	if o.OccurrencesCRS != "" {
 		sr, err := godal.NewSpatialRef(o.OccurrencesCRS)
 		if err != nil {
@@ -563,6 +563,9 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 					o.OccurrencesCRS, gdalmsg.Cause(err.Error())))
 			}
 			defer toLL.Close()
+			if fromLL, err = godal.NewTransform(wgs, sr); err == nil {
+				defer fromLL.Close()
+			}
 		}
 	}
 	recs, err = s.readOccurrences(geographic)
@@ -585,11 +588,65 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 	}
 	if toLL != nil {
 		okv := make([]bool, len(recs))
-		if err := toLL.TransformEx(lons, lats, nil, okv); err != nil {
-			return nil, nil, nil, fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %w", o.Occurrences, o.OccurrencesCRS, err))
+		terr := toLL.TransformEx(lons, lats, nil, okv)
+		if bad := offEarth(recs, lons, lats, okv, fromLL); len(bad) > 0 {
+			return nil, nil, nil, fault.BadInput(offEarthError(o.Occurrences, o.OccurrencesCRS, recs, bad))
+		}
+		if terr != nil {
+			return nil, nil, nil, fault.BadInput(fmt.Errorf("%s: coordinates cannot be transformed from %s to WGS84: %w", o.Occurrences, o.OccurrencesCRS, terr))
 		}
 	}
 	return lons, lats, recs, nil
+}
+
+// roundTripTol is how far (in the units of --occurrences-crs) a
+// coordinate pair may come back from WGS84 before offEarth takes it for a
+// point off the Earth: our choice, far above a round trip's error
+// (nanometres; a datum grid's, millimetres) and far below the thousands of
+// kilometres a wrapped point lands away.
+const roundTripTol = 1.0
+
+// offEarth returns the indexes of the records that are not on the Earth:
+// those PROJ could not transform (ok false, or no finite result), and,
+// with fromLL (WGS84 back to the table's CRS), those whose longitude and
+// latitude do not map back to their coordinates within roundTripTol. On
+// Equal Earth, Eckert IV or sinusoidal world maps PROJ's inverse gives a
+// point beyond the map's outline a position on the other side of the
+// Earth instead of failing, and the point would be placed there.
+func offEarth(recs []inputs.Record, lons, lats []float64, ok []bool, fromLL *godal.Transform) []int {
+	var bad []int
+	xs, ys := slices.Clone(lons), slices.Clone(lats)
+	back := make([]bool, len(xs))
+	if fromLL == nil || fromLL.TransformEx(xs, ys, nil, back) != nil && !slices.Contains(back, true) {
+		back = nil
+	}
+	for i, r := range recs {
+		finite := !math.IsNaN(lons[i]) && !math.IsInf(lons[i], 0) && !math.IsNaN(lats[i]) && !math.IsInf(lats[i], 0)
+		if !ok[i] || !finite {
+			bad = append(bad, i)
+			continue
+		}
+		if back != nil && (!back[i] || !(math.Abs(xs[i]-r.X) <= roundTripTol && math.Abs(ys[i]-r.Y) <= roundTripTol)) {
+			bad = append(bad, i)
+		}
+	}
+	return bad
+}
+
+// offEarthError names the records offEarth found (the first five, by
+// line) and says what to do.
+func offEarthError(path, crs string, recs []inputs.Record, bad []int) error {
+	var lines []string
+	for _, i := range bad[:min(len(bad), 5)] {
+		lines = append(lines, fmt.Sprintf("line %d (%s, %s)", recs[i].Line,
+			strconv.FormatFloat(recs[i].X, 'f', -1, 64), strconv.FormatFloat(recs[i].Y, 'f', -1, 64)))
+	}
+	more := ""
+	if len(bad) > 5 {
+		more = fmt.Sprintf(" and %d more", len(bad)-5)
+	}
+	return fmt.Errorf("%s: %s%s: not on the Earth in %s (PROJ finds no longitude and latitude for them, or one that maps back elsewhere: beyond the outline of a world map); check those coordinates and that --occurrences-crs is the CRS they are in",
+		path, strings.Join(lines, ", "), more, crs)
 }
 
 // taxaWarning says, when the table's species column (inputs.TaxonNames)
