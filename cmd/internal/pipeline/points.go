@@ -602,9 +602,10 @@ func (s *Study) readLonLat() (lons, lats []float64, recs []inputs.Record, err er
 // roundTripTol is how far (in the units of --occurrences-crs) a
 // coordinate pair may come back from WGS84 before offEarth takes it for a
 // point off the Earth: our choice, far above a round trip's error
-// (nanometres; a datum grid's, millimetres) and far below the thousands of
-// kilometres a wrapped point lands away.
-const roundTripTol = 1.0
+// (nanometres; a datum grid's, millimetres; metres should PROJ pick
+// transformations of different accuracy the two ways) and far below the
+// thousands of kilometres a wrapped point lands away.
+const roundTripTol = 1000.0
 
 // offEarth returns the indexes of the records that are not on the Earth:
 // those PROJ could not transform (ok false, or no finite result), and,
