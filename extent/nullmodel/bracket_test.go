@@ -85,6 +85,11 @@ func TestBracketContainsDistance(t *testing.T) {
 		{"antipode-dense", -172, -42, 0.05, 100, 60, 10, 45, 10.5, 45.5, 300, 0},
 		{"far-dense-long", -160, -20, 0.05, 200, 120, 10, 45, 12, 45.1, 300, 0.5},
 		{"mid-dense", 75, 12, 0.05, 200, 120, 10, 45, 10.5, 45.5, 300, 0.5},
+		// Dense points round a pole on a whole-world grid, and across the
+		// antimeridian: farPrune's bounds near the pole and at every
+		// distance up to the antipode.
+		{"world-pole-dense", -180, 90, 1, 360, 180, -180, 89.2, 180, 89.9, 100, 0},
+		{"world-antimeridian-dense", -180, 90, 1, 360, 180, 179.6, -30.4, 180.4, -30, 100, 0},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
