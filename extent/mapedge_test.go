@@ -228,41 +228,29 @@ func TestMapEdgeOutline(t *testing.T) {
 // whose edges are the map's to 5 mm: within the snap), and Goode's
 // interrupted homolosine (not handled: its outline has gaps).
 func TestMapEdgeNone(t *testing.T) {
-	for _, tc := range []struct {
-		name string
-		crs  string
-		gt   [6]float64
-		w, h int
-	}{
+	forGrids(t, []gridCase{
 		{"LAEA Europe", "EPSG:3035", [6]float64{1000000, 10000, 0, 6000000, 0, -10000}, 500, 500},
 		{"Mollweide over Africa", "ESRI:54009", [6]float64{-2000000, 10000, 0, 4000000, 0, -10000}, 500, 800},
 		{"EASE-Grid 2.0 global", "EPSG:6933", [6]float64{-17367530.45, 25025.26, 0, 7314540.83, 0, -25025.26}, 1388, 584},
 		{"Goode homolosine", "ESRI:54052", [6]float64{-20100000, 100000, 0, 9100000, 0, -100000}, 402, 182},
-	} {
-		t.Run(tc.name, func(t *testing.T) {
-			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
-			if err != nil {
-				t.Fatal(err)
-			}
-			defer g.Close()
-			if g.edges != nil {
-				t.Fatalf("%d cut cells", len(g.edges.cols))
-			}
-			var areas []float64
-			for r := 0; r < g.Height; r++ {
-				areas = g.RowAreas(r, areas)
-				want := math.Abs(tc.gt[1]*tc.gt[5]) * g.areaScale(r) / 1e6
-				for c, a := range areas {
-					if math.Float64bits(a) != math.Float64bits(want) {
-						t.Fatalf("cell (%d, %d): %v km2, planar %v", c, r, a, want)
-					}
-				}
-				if !g.RowCellsEqual(r, 0, g.Width) {
-					t.Fatalf("row %d not equal", r)
+	}, func(t *testing.T, g *Grid) {
+		if g.edges != nil {
+			t.Fatalf("%d cut cells", len(g.edges.cols))
+		}
+		var areas []float64
+		for r := 0; r < g.Height; r++ {
+			areas = g.RowAreas(r, areas)
+			want := math.Abs(g.GeoTransform[1]*g.GeoTransform[5]) * g.areaScale(r) / 1e6
+			for c, a := range areas {
+				if math.Float64bits(a) != math.Float64bits(want) {
+					t.Fatalf("cell (%d, %d): %v km2, planar %v", c, r, a, want)
 				}
 			}
-		})
-	}
+			if !g.RowCellsEqual(r, 0, g.Width) {
+				t.Fatalf("row %d not equal", r)
+			}
+		}
+	})
 }
 
 // TestTrapezoidStrip: the area of a trapezoid between two columns, worked
@@ -347,66 +335,77 @@ func TestMapEdgeExtentArea(t *testing.T) {
 // centres within 1 km of the outline (where the ring's tolerance could
 // decide) are not asked. The outline is the one TestMapEdgeOutline checks.
 func TestMapEdgeOffMap(t *testing.T) {
-	for _, tc := range []struct {
-		name string
-		crs  string
-		gt   [6]float64
-		w, h int
-	}{
+	forGrids(t, []gridCase{
 		{"Mollweide 100 km", "ESRI:54009", [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}, 362, 182},
 		{"Equal Earth 100 km", "EPSG:8857", [6]float64{-17300000, 100000, 0, 8400000, 0, -100000}, 346, 168},
 		{"sinusoidal 100 km", "ESRI:54008", [6]float64{-20100000, 100000, 0, 10100000, 0, -100000}, 402, 202},
-	} {
+	}, func(t *testing.T, g *Grid) {
+		xs, ys, _, ok := g.worldOutline()
+		if !ok || g.edges == nil {
+			t.Fatal("no outline")
+		}
+		lons, lats := make([]float64, g.Width), make([]float64, g.Width)
+		plon, plat := make([]float64, g.Width), make([]float64, g.Width)
+		in, off, wrapped := 0, 0, 0
+		for r := 0; r < g.Height; r++ {
+			g.RowLonLat(r, lons, lats)
+			for c := range plon {
+				plon[c], plat[c] = g.Centre(c, r)
+			}
+			g.transform(g.toLL, plon, plat)
+			_, yc := g.Centre(0, r)
+			cross := ringCrossings(xs, ys, yc)
+			for c := range lons {
+				x, _ := g.Centre(c, r)
+				near := false
+				for _, xc := range cross {
+					near = near || math.Abs(x-xc) < 1000
+				}
+				if near {
+					continue
+				}
+				if insideCrossings(cross, x) {
+					in++
+					if math.Float64bits(lons[c]) != math.Float64bits(plon[c]) || math.Float64bits(lats[c]) != math.Float64bits(plat[c]) {
+						t.Fatalf("cell (%d, %d) on the map: (%v, %v), the transformation gives (%v, %v)", c, r, lons[c], lats[c], plon[c], plat[c])
+					}
+					continue
+				}
+				off++
+				if !math.IsNaN(plon[c]) {
+					wrapped++
+				}
+				if !math.IsNaN(lons[c]) || !math.IsNaN(lats[c]) {
+					t.Fatalf("cell (%d, %d) off the map at (%v, %v): given (%v, %v)", c, r, x, yc, lons[c], lats[c])
+				}
+			}
+		}
+		t.Logf("%d cells on the map, %d off it (%d of them given a position by PROJ's inverse)", in, off, wrapped)
+		if in == 0 || off == 0 {
+			t.Fatal("the grid must hold cells on and off the map")
+		}
+	})
+}
+
+// gridCase is a grid of the map-edge tests: a name, a CRS, a geotransform
+// and a size.
+type gridCase struct {
+	name string
+	crs  string
+	gt   [6]float64
+	w, h int
+}
+
+// forGrids runs fn, as a subtest named after it, on each grid of cases.
+func forGrids(t *testing.T, cases []gridCase, fn func(t *testing.T, g *Grid)) {
+	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			g, err := NewGrid(tc.w, tc.h, tc.gt, tc.crs)
 			if err != nil {
 				t.Fatal(err)
 			}
 			defer g.Close()
-			xs, ys, _, ok := g.worldOutline()
-			if !ok || g.edges == nil {
-				t.Fatal("no outline")
-			}
-			lons, lats := make([]float64, g.Width), make([]float64, g.Width)
-			plon, plat := make([]float64, g.Width), make([]float64, g.Width)
-			in, off, wrapped := 0, 0, 0
-			for r := 0; r < g.Height; r++ {
-				g.RowLonLat(r, lons, lats)
-				for c := range plon {
-					plon[c], plat[c] = g.Centre(c, r)
-				}
-				g.transform(g.toLL, plon, plat)
-				_, yc := g.Centre(0, r)
-				cross := ringCrossings(xs, ys, yc)
-				for c := range lons {
-					x, _ := g.Centre(c, r)
-					near := false
-					for _, xc := range cross {
-						near = near || math.Abs(x-xc) < 1000
-					}
-					if near {
-						continue
-					}
-					if insideCrossings(cross, x) {
-						in++
-						if math.Float64bits(lons[c]) != math.Float64bits(plon[c]) || math.Float64bits(lats[c]) != math.Float64bits(plat[c]) {
-							t.Fatalf("cell (%d, %d) on the map: (%v, %v), the transformation gives (%v, %v)", c, r, lons[c], lats[c], plon[c], plat[c])
-						}
-						continue
-					}
-					off++
-					if !math.IsNaN(plon[c]) {
-						wrapped++
-					}
-					if !math.IsNaN(lons[c]) || !math.IsNaN(lats[c]) {
-						t.Fatalf("cell (%d, %d) off the map at (%v, %v): given (%v, %v)", c, r, x, yc, lons[c], lats[c])
-					}
-				}
-			}
-			t.Logf("%d cells on the map, %d off it (%d of them given a position by PROJ's inverse)", in, off, wrapped)
-			if in == 0 || off == 0 {
-				t.Fatal("the grid must hold cells on and off the map")
-			}
+			fn(t, g)
 		})
 	}
 }
