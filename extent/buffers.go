@@ -15,14 +15,20 @@ import (
 // belongs to a grown member when its centre is inside the base or within d
 // of the base boundary, and to a shrunk member when its centre is inside
 // and farther than |d| from the boundary; distances are geodesic on WGS84
-// to the boundary densified every cell side (boundaryLonLat).
+// to the boundary cut at bufferStep of the distances on the ground
+// (boundaryLonLat), so that a distance at a buffer's |d| is overestimated
+// by at most bufferTol.
 func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	if len(ds) == 0 {
 		b.f.Chains[chainRegion] = []int{0}
 		return nil
 	}
 	ds = sortedUnique(ds)
-	lats, lons, err := boundaryLonLat(b.g, base)
+	dm := make([]float64, len(ds))
+	for i, d := range ds {
+		dm[i] = math.Abs(d) * 1000
+	}
+	lats, lons, err := boundaryLonLat(b.g, base, bufferStep(dm))
 	if err != nil {
 		return err
 	}
@@ -103,9 +109,11 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 }
 
 // MaxBoundaryPoints caps the points of the base region's boundary
-// densified every cell side for the region buffers (boundaryLonLat): 2^25
-// points, 1 GiB of coordinates. A region drawn around the raster has about
-// as many as there are cells along its boundary; more come only from a
+// cut for the region buffers (boundaryLonLat): 2^25
+// points, 1 GiB of coordinates (in the CRS and in WGS84). A region drawn
+// around the raster has about its length over bufferStep, or as many as
+// there are cells along its boundary where they are smaller; more come
+// only from a
 // region reaching where the raster's CRS stretches without bound (the
 // opposite pole of a polar stereographic grid lies at 1e23 m), whose
 // boundary could never be sampled.
@@ -122,40 +130,57 @@ func edgeSteps(a, b orb.Point, step float64) float64 {
 	return n
 }
 
-// boundaryLonLat returns points along the boundary of s every cell side,
-// as WGS84 latitude and longitude. Edges are densified as straight
-// lines in the grid's CRS, the same edges Fill uses to decide which cells
-// are inside, so distances are measured to the boundary that defines the
-// region on the grid. Seam edges (see seamEdge) are left out. A boundary
-// that would take more than MaxBoundaryPoints points is an error.
-func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
-	// One cell side: the nearest sample is then within half a side of the
-	// nearest boundary point, so a distance is overestimated by less than
-	// half a cell diagonal, the margin within which a cell may fall either
-	// side of a buffer edge.
-	step := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
+// boundaryLonLat returns points along the boundary of s, as WGS84
+// latitude and longitude, no two neighbours on an edge farther apart on
+// the ground than step (m; see bufferStep). Edges are cut as straight
+// lines in the grid's CRS, the same edges Fill uses to decide which
+// cells are inside, so distances are measured to the boundary that
+// defines the region on the grid. They are cut every cell side first,
+// then each piece whose ground length may exceed step (geodesy.ChordUpper
+// of its ends: an upper bound on the geodesic, so on the ground length
+// of a piece shorter than a cell) is cut again into equal parts in the
+// CRS, and so on until none may (refineBoundary): the spacing holds
+// wherever the projection stretches lengths (the sheared edges of a
+// Mollweide map), and at latitude-longitude cells of any size. Seam
+// edges (see seamEdge) are left out. A boundary that would take more
+// than MaxBoundaryPoints points is an error.
+func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err error) {
+	side := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
 	total, longest := 0.0, 0.0
 	boundaryEdges(g, s, func(a, b orb.Point) {
-		n := edgeSteps(a, b, step)
+		n := edgeSteps(a, b, side)
 		total += n + 1
-		longest = math.Max(longest, n*step)
+		longest = math.Max(longest, n*side)
 	})
-	if total > MaxBoundaryPoints {
-		return nil, nil, fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every cell side (%g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, MaxBoundaryPoints, longest)
+	tooMany := func(total float64) error {
+		return fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every %.3g m on the ground (and at least one every cell side, %g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, side, MaxBoundaryPoints, longest)
 	}
-	xs, ys := make([]float64, 0, int(total)), make([]float64, 0, int(total))
+	if total > MaxBoundaryPoints {
+		return nil, nil, tooMany(total)
+	}
+	pl := boundaryPoints{xs: make([]float64, 0, int(total)), ys: make([]float64, 0, int(total))}
 	boundaryEdges(g, s, func(a, b orb.Point) {
-		n := int(edgeSteps(a, b, step))
+		n := int(edgeSteps(a, b, side))
+		pl.first = append(pl.first, len(pl.xs))
 		for k := 0; k < n; k++ {
 			f := float64(k) / float64(n)
-			xs = append(xs, a[0]+f*(b[0]-a[0]))
-			ys = append(ys, a[1]+f*(b[1]-a[1]))
+			pl.xs = append(pl.xs, a[0]+f*(b[0]-a[0]))
+			pl.ys = append(pl.ys, a[1]+f*(b[1]-a[1]))
 		}
-		xs, ys = append(xs, b[0]), append(ys, b[1])
+		pl.xs, pl.ys = append(pl.xs, b[0]), append(pl.ys, b[1])
 	})
-	lons = make([]float64, len(xs))
-	lats = make([]float64, len(ys))
-	g.ToLonLat(xs, ys, lons, lats)
+	pl.lons, pl.lats = make([]float64, len(pl.xs)), make([]float64, len(pl.ys))
+	g.ToLonLat(pl.xs, pl.ys, pl.lons, pl.lats)
+	for round := 0; round < maxRefineRounds; round++ {
+		more, n := pl.refine(g, step)
+		if n > MaxBoundaryPoints {
+			return nil, nil, tooMany(float64(n))
+		}
+		if !more {
+			break
+		}
+	}
+	lons, lats = pl.lons, pl.lats
 	k := 0
 	for i := range lats {
 		if !math.IsNaN(lats[i]) {
@@ -172,6 +197,108 @@ func boundaryLonLat(g *Grid, s Shape) (lats, lons []float64, err error) {
 	}
 	return lats[:k], lons[:k], nil
 }
+
+// maxRefineRounds caps the rounds of boundaryPoints.refine. One round
+// nearly always suffices (a piece is cut where its own ends say, and the
+// projection's scale barely changes along a cell); a second catches the
+// pieces of a cell that a fast-changing scale left long.
+const maxRefineRounds = 8
+
+// boundaryPoints are the points a boundary is cut into, in the grid's CRS
+// (xs, ys) and in WGS84 (lons, lats; NaN off the Earth), edge after edge:
+// first[j] is the index of edge j's first point, and its last point is
+// the one before first[j+1] (the last of all for the last edge).
+type boundaryPoints struct {
+	xs, ys, lons, lats []float64
+	first              []int
+}
+
+// refine cuts every piece between two neighbours of an edge that may be
+// longer on the ground than step into ceil(u / step) equal parts in the
+// CRS, u its geodesy.ChordUpper (pieces past 3000 km, where that bound
+// gives up, in two), and transforms the new points. It reports whether it
+// cut any piece and the number of points it would hold after cutting
+// (when over MaxBoundaryPoints, it stops there and cuts nothing). Pieces
+// with an end off the Earth are left whole.
+func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int) {
+	parts := make([]int32, len(pl.xs))
+	total = len(pl.xs)
+	for j, a := range pl.first {
+		b := len(pl.xs)
+		if j+1 < len(pl.first) {
+			b = pl.first[j+1]
+		}
+		pa := geodesy.ECEF(pl.lats[a], pl.lons[a])
+		for i := a + 1; i < b; i++ {
+			pb := geodesy.ECEF(pl.lats[i], pl.lons[i])
+			if m := pieceParts(&pa, &pb, step); m > 1 {
+				parts[i] = int32(m)
+				total += m - 1
+			}
+			pa = pb
+		}
+	}
+	if total == len(pl.xs) || total > MaxBoundaryPoints {
+		return false, total
+	}
+	var nx, ny []float64
+	for i, m := range parts {
+		for k := 1; k < int(m); k++ {
+			f := float64(k) / float64(m)
+			nx = append(nx, pl.xs[i-1]+f*(pl.xs[i]-pl.xs[i-1]))
+			ny = append(ny, pl.ys[i-1]+f*(pl.ys[i]-pl.ys[i-1]))
+		}
+	}
+	nlon, nlat := make([]float64, len(nx)), make([]float64, len(ny))
+	g.ToLonLat(nx, ny, nlon, nlat)
+	out := boundaryPoints{
+		xs: make([]float64, 0, total), ys: make([]float64, 0, total),
+		lons: make([]float64, 0, total), lats: make([]float64, 0, total),
+		first: make([]int, 0, len(pl.first)),
+	}
+	e, q := 0, 0
+	for i := range pl.xs {
+		if e < len(pl.first) && pl.first[e] == i {
+			out.first = append(out.first, len(out.xs))
+			e++
+		}
+		m := int(parts[i])
+		if m > 1 {
+			out.xs, out.ys = append(out.xs, nx[q:q+m-1]...), append(out.ys, ny[q:q+m-1]...)
+			out.lons, out.lats = append(out.lons, nlon[q:q+m-1]...), append(out.lats, nlat[q:q+m-1]...)
+			q += m - 1
+		}
+		out.xs, out.ys = append(out.xs, pl.xs[i]), append(out.ys, pl.ys[i])
+		out.lons, out.lats = append(out.lons, pl.lons[i]), append(out.lats, pl.lats[i])
+	}
+	*pl = out
+	return true, total
+}
+
+// pieceParts returns the number of equal parts a piece between the ECEF
+// positions pa and pb is cut into so that none may be longer than step on
+// the ground: 1 when its ChordUpper is at most step or an end is off the
+// Earth (NaN), 2 when it is farther than ChordUpper reaches.
+func pieceParts(pa, pb *[3]float64, step float64) int {
+	if math.IsNaN(pa[0]) || math.IsNaN(pb[0]) {
+		return 1
+	}
+	u := geodesy.ChordUpper(pa, pb)
+	switch {
+	case math.IsInf(u, 1):
+		return 2
+	case u <= step:
+		return 1
+	}
+	return int(math.Ceil(u * (1 + refineMargin) / step))
+}
+
+// refineMargin is how much shorter than step refine aims its parts: our
+// choice. A projection's scale changes along a piece (across a 50 km cell
+// of a Mollweide map's flank by a few per cent), so parts cut equal in
+// the CRS are not equal on the ground; without the margin a second round
+// cut many of them in two, 15% more points than the step needs.
+const refineMargin = 0.02
 
 // boundaryEdges calls f with each edge a-b of the rings of s in order,
 // leaving out the seam edges: on a latitude-longitude grid those of

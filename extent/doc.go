@@ -18,10 +18,13 @@
 // all rings; a centre exactly on an edge follows the half-open rule of Fill,
 // so two polygons sharing an edge never share a cell). Buffer distances are
 // geodesic on the WGS84 ellipsoid (PROJ's implementation of Karney 2013),
-// measured from the cell centre to the boundary densified every cell side
-// (a distance is then overestimated by less than half a side), so a cell
-// whose centre lies farther than half a cell diagonal from a buffer's edge
-// is always classified correctly.
+// measured from the cell centre to points cut along the boundary (the
+// region's edges straight in the grid's CRS, the hull's ellipsoidal
+// geodesics) close enough on the ground that a distance at a buffer's d
+// is overestimated by at most bufferTol (1 m), whatever the grid and the
+// projection (bufferStep, boundaryLonLat); point buffers are exact. So a
+// cell whose centre lies farther than 1 m from a buffer's edge is always
+// classified correctly.
 //
 // Every member is clipped to the valid cells of the reference model; a
 // member with no cell is reported "empty" and one with exactly the cells of

@@ -782,7 +782,13 @@ func wrapInto(lon, west float64) float64 {
 	return lon
 }
 
+// transform transforms the points (xs, ys) in place with one of p's
+// transformations, NaN where it fails. No points is nothing to do (godal
+// indexes the first of them).
 func (g *Grid) transform(p *transforms, xs, ys []float64) {
+	if len(xs) == 0 {
+		return
+	}
 	ok := make([]bool, len(xs))
 	t := p.get()
 	err := t.TransformEx(xs, ys, nil, ok)

@@ -126,10 +126,10 @@ func insideConvex(h [][2]float64, x, y float64) bool {
 	return true
 }
 
-// hullBufferTol (m) is our choice of the largest error allowed in a hull
-// buffer's distance where it decides membership: at the buffer's
-// distance d from the hull's boundary.
-const hullBufferTol = 1.0
+// bufferTol (m) is our choice of the largest error allowed in a hull or
+// region buffer's distance where it decides membership: at the buffer's
+// distance d from the hull's or the region's boundary.
+const bufferTol = 1.0
 
 // hullBoxStep (m) is our choice of the step at which the boundary is cut
 // when it only bounds the box of cells tested against the hull (no
@@ -137,19 +137,21 @@ const hullBufferTol = 1.0
 // under 2 cm wide.
 const hullBoxStep = 1000.0
 
-// hullStep returns the step (m) at which the hull's boundary is cut into
-// the points its buffers' distances are measured to, for buffer distances
-// dm (m; 0 is the hull itself). A cell centre at distance D from an edge
-// lies at most sqrt(D^2 + (s/2)^2) from the nearest point cut every s
+// bufferStep returns the step (m) at which the hull's or the region's
+// boundary is cut into the points its buffers' distances are measured
+// to, for buffer distances dm (m; 0 is the hull or the region itself). A
+// cell centre at distance D from an edge lies at most sqrt(D^2 + (s/2)^2) from the nearest point cut every s
 // along it (in the plane; less on a surface curved like the ellipsoid),
 // so its distance is overestimated by at most s^2 / (8 D) at D = d, where
-// membership is decided: s = sqrt(8 d_min hullBufferTol) keeps that
-// within hullBufferTol for every buffer, whatever the grid. (The step was
-// the grid's shortest cell side: 13.5 m on a 5-arc-minute grid reaching a
+// membership is decided: s = sqrt(8 d_min bufferTol) keeps that
+// within bufferTol for every buffer, whatever the grid. (The hull's step
+// was the grid's shortest cell side: 13.5 m on a 5-arc-minute grid reaching a
 // pole, 0.13 m on a 30-arc-second one, where a hull some 10,000 km round
 // took 10^8 points; and 6.9 km on the demo's grid, where a distance at
-// 100 km was over by up to 60 m.)
-func hullStep(dm []float64) float64 {
+// 100 km was over by up to 60 m. The region's boundary was cut every
+// cell side too, over by up to s^2 / (8 d): 500 m at 20 km on a 5-arc-
+// minute grid.)
+func bufferStep(dm []float64) float64 {
 	dMin := math.Inf(1)
 	for _, d := range dm {
 		if d > 0 {
@@ -159,7 +161,7 @@ func hullStep(dm []float64) float64 {
 	if math.IsInf(dMin, 1) {
 		return hullBoxStep
 	}
-	return math.Sqrt(8 * dMin * hullBufferTol)
+	return math.Sqrt(8 * dMin * bufferTol)
 }
 
 // sphericalHull is the convex hull of points on the sphere.
@@ -248,7 +250,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 		maxD = math.Max(maxD, d*1000)
 	}
 	ring := h.boundary()
-	step := hullStep(dm)
+	step := bufferStep(dm)
 	var lats, lons []float64
 	for i := 1; i < len(ring); i++ {
 		la, lo := geodesy.Densify(ring[i-1].Lat, ring[i-1].Lon, ring[i].Lat, ring[i].Lon, step)

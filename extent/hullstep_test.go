@@ -5,13 +5,15 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"github.com/paulmach/orb"
+
 	"areasweep/extent/geodesy"
 )
 
-// TestHullStep: the hull's boundary is cut at sqrt(8 d_min x 1 m) for the
+// TestBufferStep: the hull's boundary is cut at sqrt(8 d_min x 1 m) for the
 // smallest positive hull buffer d_min (worked by hand: 894.43 m at 100
 // km), at hullBoxStep without one, whatever the grid.
-func TestHullStep(t *testing.T) {
+func TestBufferStep(t *testing.T) {
 	for _, tc := range []struct {
 		name string
 		dm   []float64
@@ -21,20 +23,20 @@ func TestHullStep(t *testing.T) {
 		{"smallest buffer decides", []float64{250e3, 10e3, 0}, math.Sqrt(8e4)},
 		{"hull only", []float64{0}, hullBoxStep},
 	} {
-		if got := hullStep(tc.dm); math.Abs(got-tc.want) > 1e-9 {
+		if got := bufferStep(tc.dm); math.Abs(got-tc.want) > 1e-9 {
 			t.Errorf("%s: step %g m, want %g", tc.name, got, tc.want)
 		}
 	}
 }
 
-// TestHullStepBound: a point at geodesic distance d from an ellipsoidal
+// TestBufferStepBound: a point at geodesic distance d from an ellipsoidal
 // geodesic edge (reached by going d at right angles from a point on the
-// edge) lies within d + hullBufferTol of the points the edge is cut into
+// edge) lies within d + bufferTol of the points the edge is cut into
 // at hullStep for buffers of d, and no nearer than d (less a millimetre
 // of rounding, our tolerance): the bound hullStep's comment derives, on
 // edges of 20 to 3000 km anywhere between 80 S and 80 N, d from 1 to
 // 1000 km (PROJ's geodesics, Karney 2013).
-func TestHullStepBound(t *testing.T) {
+func TestBufferStepBound(t *testing.T) {
 	// Our choice of seed: fixed cases.
 	rng := rand.New(rand.NewPCG(3, 5))
 	worst := 0.0
@@ -46,7 +48,7 @@ func TestHullStepBound(t *testing.T) {
 			continue
 		}
 		d := math.Pow(10, 3+3*rng.Float64())
-		step := hullStep([]float64{0, d})
+		step := bufferStep([]float64{0, d})
 		lats, lons := geodesy.Densify(lat1, lon1, lat2, lon2, step)
 		// A foot strictly between two cut points, then d at right angles.
 		s, azi, _ := geodesy.Inverse(lat1, lon1, lat2, lon2)
@@ -65,10 +67,66 @@ func TestHullStepBound(t *testing.T) {
 		for j := range lats {
 			near = math.Min(near, geodesy.Distance(plat, plon, lats[j], lons[j]))
 		}
-		if near > d+hullBufferTol || near < d-1e-3 {
-			t.Errorf("edge (%.3f, %.3f)-(%.3f, %.3f), d %.0f m, step %.1f m: nearest cut point %.4f m away, want within [d, d + %g m]", lat1, lon1, lat2, lon2, d, step, near, hullBufferTol)
+		if near > d+bufferTol || near < d-1e-3 {
+			t.Errorf("edge (%.3f, %.3f)-(%.3f, %.3f), d %.0f m, step %.1f m: nearest cut point %.4f m away, want within [d, d + %g m]", lat1, lon1, lat2, lon2, d, step, near, bufferTol)
 		}
 		worst = math.Max(worst, near-d)
 	}
-	t.Logf("largest overestimate %.4f m (bound %g m)", worst, hullBufferTol)
+	t.Logf("largest overestimate %.4f m (bound %g m)", worst, bufferTol)
+}
+
+// TestBoundarySpacing: the region's boundary is cut so that no two
+// neighbouring points lie farther apart on the ground than the step
+// (PROJ's geodesic between them, Karney 2013), on grids whose cells are
+// larger than the step and where the projection stretches lengths (a
+// Mollweide map's sheared flank, polar stereographic far from the pole),
+// and not cut much finer than that: at most 5% more points than the
+// boundary's length over the step needs, plus the points of the first
+// cut every cell side (our bound: each piece a cell long is cut into
+// ceil(length / step) parts).
+func TestBoundarySpacing(t *testing.T) {
+	rect := func(x0, y0, x1, y1 float64) Shape {
+		return Shape{Grid: orb.MultiPolygon{{{{x0, y0}, {x1, y0}, {x1, y1}, {x0, y1}, {x0, y0}}}}}
+	}
+	const step = 566.0 // bufferStep for a smallest buffer of 40 km
+	for _, tc := range []struct {
+		grid  gridCase
+		shape Shape
+	}{
+		{gridCase{"lat-lon 0.5 degree", "EPSG:4326", [6]float64{0, 0.5, 0, 55, 0, -0.5}, 40, 40}, rect(2, 40, 14, 52)},
+		{gridCase{"lat-lon 0.01 degree", "EPSG:4326", [6]float64{4, 0.01, 0, 46, 0, -0.01}, 140, 220}, rect(4.1, 44.1, 5.3, 45.9)},
+		{gridCase{"lat-lon 1 degree 70N", "EPSG:4326", [6]float64{-40, 1, 0, 80, 0, -1}, 90, 20}, rect(-30, 62, 40, 78)},
+		{gridCase{"UTM 33N 10 km", "EPSG:32633", [6]float64{200e3, 10e3, 0, 5700e3, 0, -10e3}, 60, 80}, rect(300e3, 5000e3, 700e3, 5600e3)},
+		{gridCase{"Mollweide flank", "ESRI:54009", [6]float64{8000e3, 50e3, 0, 8000e3, 0, -50e3}, 80, 80}, rect(9000e3, 5000e3, 11000e3, 7000e3)},
+		{gridCase{"polar stereographic", "EPSG:3413", [6]float64{-2000e3, 25e3, 0, 0, 0, -25e3}, 120, 100}, rect(-1500e3, -1500e3, 500e3, -600e3)},
+	} {
+		forGrids(t, []gridCase{tc.grid}, func(t *testing.T, g *Grid) { checkBoundarySpacing(t, g, tc.shape, step) })
+	}
+}
+
+// checkBoundarySpacing is TestBoundarySpacing on one grid and shape.
+func checkBoundarySpacing(t *testing.T, g *Grid, s Shape, step float64) {
+	lats, lons, err := boundaryLonLat(g, s, step)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(lats) < 4 {
+		t.Fatalf("%d boundary points", len(lats))
+	}
+	first := 0.0
+	side := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
+	boundaryEdges(g, s, func(a, b orb.Point) { first += edgeSteps(a, b, side) + 1 })
+	widest, length := 0.0, 0.0
+	for i := 1; i < len(lats); i++ {
+		d := geodesy.Distance(lats[i-1], lons[i-1], lats[i], lons[i])
+		widest = math.Max(widest, d)
+		length += d
+	}
+	if widest > step {
+		t.Errorf("neighbouring boundary points %.1f m apart, want at most %g", widest, step)
+	}
+	if limit := 1.05*length/step + first; float64(len(lats)) > limit {
+		t.Errorf("%d boundary points for %.0f m of boundary, want at most %.0f", len(lats), length, limit)
+	}
+	t.Logf("%d points, %.1f km, widest gap %.1f m", len(lats), length/1000, widest)
 }

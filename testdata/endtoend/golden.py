@@ -49,15 +49,12 @@ from the documented rules WITHOUT areasweep:
               vertices (Geod.npts every 100 m); ecoregion units held (OGR
               Contains of the training points) and touching (OGR
               Intersects), placed where they meet the grid. areasweep
-              densifies a region's boundary every cell side (README), which
-              can overestimate a distance g by up to sqrt(g^2 + (side/2)^2)
-              - g: cells inside a region buffer by less than that are
-              "ambiguous", listed and not asserted; it cuts the hull's
-              boundary so that a distance at a hull buffer's d is over by
-              at most 1 m (README), and this script's own 100 m sampling
-              overestimates by up to 100^2 / (8 d): cells whose distance
-              here lies within the sum of the two of d are ambiguous; so
-              are, for a region in another CRS
+              cuts a region's and the hull's boundary so that a distance
+              at a buffer's d is over by at most 1 m (README), and this
+              script's own sampling (56 m on a region's boundary, 100 m on
+              the hull's) overestimates by up to step^2 / (8 d): cells
+              whose distance here lies within the sum of the two of d are
+              "ambiguous", listed and not asserted; so are, for a region in another CRS
               than the grid's, the centres within 0.01 cell of its true
               edge and the cells whose distance to it is within 0.01 cell
               side of a buffer's (README: areasweep follows such edges to
@@ -774,11 +771,13 @@ def study(spec):
             within = pd <= dm  # far from the edge, planar and geodesic agree on the side
             gd = geodesic(near)
             within[near] = gd <= dm
-            # README: the boundary is densified every cell side, so a
-            # distance is overestimated by at most sqrt(g^2 + (s/2)^2) - g:
-            # only cells just inside the buffer's edge can be missed.
-            half = side / 2
-            amb = near[((gd <= dm + 1e-3) & (np.sqrt(gd * gd + half * half) > dm - 1e-3)) | (np.abs(gd - dm) <= tol_cells * side + 1e-3)]
+            # README: the boundary is cut so that a distance at a buffer's
+            # d is over by at most 1 m; this script's own points, at most
+            # 56 m apart (0.0005 degrees of latitude), overestimate by up
+            # to 56^2 / (8 d): cells whose distance here lies within the
+            # sum of the two of d are ambiguous.
+            slack = 1.0 + 56.0 ** 2 / (8 * dm) + 1e-3
+            amb = near[(np.abs(gd - dm) < slack) | (np.abs(gd - dm) <= tol_cells * side + 1e-3)]
             if d > 0:
                 mask = (inside | within) & valid
                 eid = f"region_{d:g}km"
