@@ -32,8 +32,8 @@ func TestBufferStep(t *testing.T) {
 // TestBufferStepBound: a point at geodesic distance d from an ellipsoidal
 // geodesic edge (reached by going d at right angles from a point on the
 // edge) lies within d + bufferTol of the points the edge is cut into
-// at hullStep for buffers of d, and no nearer than d (less a millimetre
-// of rounding, our tolerance): the bound hullStep's comment derives, on
+// at bufferStep for buffers of d, and no nearer than d (less a millimetre
+// of rounding, our tolerance): the bound bufferStep's comment derives, on
 // edges of 20 to 3000 km anywhere between 80 S and 80 N, d from 1 to
 // 1000 km (PROJ's geodesics, Karney 2013).
 func TestBufferStepBound(t *testing.T) {
