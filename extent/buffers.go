@@ -11,14 +11,14 @@ import (
 	"areasweep/extent/vocab"
 )
 
-// regionBuffers adds the base grown or shrunk by each distance. A cell
-// belongs to a grown member when its centre is inside the base or within d
-// of the base boundary, and to a shrunk member when its centre is inside
-// and farther than |d| from the boundary; distances are geodesic on WGS84
-// to the boundary cut at bufferStep of the distances on the ground
-// (boundaryLonLat), so that a distance at a buffer's |d| is overestimated
-// by at most bufferTol.
-func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
+// regionBuffers adds the base (read from path) grown or shrunk by each
+// distance. A cell belongs to a grown member when its centre is inside
+// the base or within d of the base boundary, and to a shrunk member when
+// its centre is inside and farther than |d| from the boundary; distances
+// are geodesic on WGS84 to the boundary cut at bufferStep of the
+// distances on the ground (boundaryLonLat), so that a distance at a
+// buffer's |d| is overestimated by at most bufferTol.
+func (b *builder) regionBuffers(path string, base Shape, baseK int, ds []float64) error {
 	if len(ds) == 0 {
 		b.f.Chains[chainRegion] = []int{0}
 		return nil
@@ -30,7 +30,7 @@ func (b *builder) regionBuffers(base Shape, baseK int, ds []float64) error {
 	}
 	lats, lons, err := boundaryLonLat(b.g, base, bufferStep(dm))
 	if err != nil {
-		return err
+		return fmt.Errorf("extent: %s: %w", path, err)
 	}
 	type buf struct {
 		k   int
@@ -153,7 +153,7 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 		longest = math.Max(longest, n*side)
 	})
 	tooMany := func(total float64) error {
-		return fmt.Errorf("extent: region buffers: the base region's boundary would take %.3g points at one every %.3g m on the ground (and at least one every cell side, %g), more than %d: an edge of it runs about %.3g units of the raster's CRS, so the region reaches far outside the raster (perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection); clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates), or give no --region-buffers", total, step, side, MaxBoundaryPoints, longest)
+		return fmt.Errorf("region buffers: the base region's boundary would take %.3g points, more than %d: it is cut every cell side (%g in the raster's CRS) and, so that a distance at the smallest buffer is right to 1 m, at least every %.3g m on the ground. Either the region reaches far outside the raster (its longest edge runs about %.3g units of the raster's CRS; perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection): clip it to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates); or its boundary is too long for a buffer that small: give larger --region-buffers; or give no --region-buffers", total, MaxBoundaryPoints, side, step, longest)
 	}
 	if total > MaxBoundaryPoints {
 		return nil, nil, tooMany(total)

@@ -70,7 +70,7 @@ func Build(g *Grid, valid *Valid, spec Spec, trainCells, testCells []int) (*Fami
 		return nil, err
 	}
 	b.fillRuns(baseK, base.Grid)
-	if err := b.regionBuffers(base, baseK, spec.RegionBuffersKm); err != nil {
+	if err := b.regionBuffers(spec.Region, base, baseK, spec.RegionBuffersKm); err != nil {
 		return nil, err
 	}
 	if len(spec.PointBuffersKm) > 0 {

@@ -3,6 +3,7 @@ package extent
 import (
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -129,4 +130,23 @@ func checkBoundarySpacing(t *testing.T, g *Grid, s Shape, step float64) {
 		t.Errorf("%d boundary points for %.0f m of boundary, want at most %.0f", len(lats), length, limit)
 	}
 	t.Logf("%d points, %.1f km, widest gap %.1f m", len(lats), length/1000, widest)
+}
+
+// TestBoundaryTooManyPoints: a buffer so small that a 1 m bound would cut
+// the region's boundary into more than MaxBoundaryPoints points (0.1 mm:
+// a cut every 2.8 cm along some 4,000 km) is refused before the points
+// are made, naming the region's file and the two ways out.
+func TestBoundaryTooManyPoints(t *testing.T) {
+	dir := t.TempDir()
+	region := writeGeoJSON(t, dir, "region.geojson", []string{"r"}, [][][2]float64{{{4, 40}, {14, 40}, {14, 50}, {4, 50}, {4, 40}}})
+	g, v := geoGrid(t, 0, 55, 0.5, 40, 40)
+	_, err := Build(g, v, Spec{Region: region, RegionBuffersKm: []float64{1e-7}}, nil, nil)
+	if err == nil {
+		t.Fatal("a 0.1 mm region buffer on a 4,000 km boundary was accepted")
+	}
+	for _, want := range []string{region, "more than 33554432", "give larger --region-buffers", "clip it"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message %q does not say %q", err, want)
+		}
+	}
 }
