@@ -685,15 +685,15 @@ func (g *Grid) MinCellSideM() float64 {
 // be lons and lats.
 func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
 	if g.edges != nil && !g.Geographic {
-		bp := offMapPool.Get().(*[]float64)
-		buf := append((*bp)[:0], xs...)
-		buf = append(buf, ys...)
+		// The points as given, for the round trip: xs and ys may be lons
+		// and lats.
+		sc := offMapPool.Get().(*offMapScratch)
+		sc.ox, sc.oy = append(sc.ox[:0], xs...), append(sc.oy[:0], ys...)
 		copy(lons, xs)
 		copy(lats, ys)
 		g.transform(g.toLL, lons, lats)
-		g.dropOffMap(buf[:len(xs)], buf[len(xs):], lons, lats)
-		*bp = buf
-		offMapPool.Put(bp)
+		g.dropOffMap(sc.ox, sc.oy, lons, lats, g.edges, sc)
+		offMapPool.Put(sc)
 		return
 	}
 	copy(lons, xs)
@@ -704,9 +704,17 @@ func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
 	g.transform(g.toLL, lons, lats)
 }
 
-// offMapPool holds ToLonLat's copies of the points on grids with a world
-// map's outline.
-var offMapPool = sync.Pool{New: func() any { return new([]float64) }}
+// offMapPool holds ToLonLat's and dropOffMap's scratch on grids with a
+// world map's outline.
+var offMapPool = sync.Pool{New: func() any { return new(offMapScratch) }}
+
+// offMapScratch is that scratch: the points as given (ox, oy), the
+// indices of those checked and their round trips (fx, fy).
+type offMapScratch struct {
+	ox, oy []float64
+	idx    []int
+	fx, fy []float64
+}
 
 // roundTripRelTol is how far, as a share of the shorter cell side, a
 // point's longitude and latitude may map back from where they came from
@@ -722,23 +730,35 @@ const roundTripRelTol = 1e-3
 // position on the other side of the Earth instead of failing (Equal Earth
 // (17,300 km, 8,000 km) came back as 79 W, 75 N), so a cell there with
 // data would be placed by the buffers and the distance-only null where it
-// is not; Mollweide's inverse fails there already.
-func (g *Grid) dropOffMap(xs, ys, lons, lats []float64) {
-	bp := offMapPool.Get().(*[]float64)
-	buf := append(append((*bp)[:0], lons...), lats...)
-	fx, fy := buf[:len(lons)], buf[len(lons):]
-	g.transform(g.frLL, fx, fy)
-	tol := roundTripRelTol * math.Min(math.Abs(g.GeoTransform[1]), math.Abs(g.GeoTransform[5]))
+// is not; Mollweide's inverse fails there already. Points in a cell of
+// e's inner runs (wholly on the map, see mapEdges.setInner) are not
+// checked: on a world map nearly every cell with data, so the round trip
+// costs PROJ's forward transformation only near the outline and off the
+// map (it doubled the transformations of a run on a Mollweide map). e
+// nil checks every point. xs and ys must not be lons and lats; sc is the
+// scratch (its ox and oy untouched).
+func (g *Grid) dropOffMap(xs, ys, lons, lats []float64, e *mapEdges, sc *offMapScratch) {
+	sc.idx = sc.idx[:0]
 	for i := range lons {
-		if math.IsNaN(lons[i]) {
+		if math.IsNaN(lons[i]) || e != nil && e.surelyOnMap(&g.GeoTransform, g.Width, g.Height, xs[i], ys[i]) {
 			continue
 		}
-		if !(math.Abs(fx[i]-xs[i]) <= tol && math.Abs(fy[i]-ys[i]) <= tol) {
+		sc.idx = append(sc.idx, i)
+	}
+	if len(sc.idx) == 0 {
+		return
+	}
+	sc.fx, sc.fy = sc.fx[:0], sc.fy[:0]
+	for _, i := range sc.idx {
+		sc.fx, sc.fy = append(sc.fx, lons[i]), append(sc.fy, lats[i])
+	}
+	g.transform(g.frLL, sc.fx, sc.fy)
+	tol := roundTripRelTol * math.Min(math.Abs(g.GeoTransform[1]), math.Abs(g.GeoTransform[5]))
+	for k, i := range sc.idx {
+		if !(math.Abs(sc.fx[k]-xs[i]) <= tol && math.Abs(sc.fy[k]-ys[i]) <= tol) {
 			lons[i], lats[i] = math.NaN(), math.NaN()
 		}
 	}
-	*bp = buf
-	offMapPool.Put(bp)
 }
 
 // FromLonLat converts WGS84 longitude and latitude to grid-CRS coordinates.

@@ -31,6 +31,13 @@ type mapEdges struct {
 	// the number of its vertices.
 	tol    float64
 	points int
+	// inner holds, row by row, the runs of columns [c0, c1) whose cells
+	// lie wholly on the map, so that ToLonLat need not check a point in
+	// them (see setInner): row r's are inner[innerOff[r]:innerOff[r+1]].
+	// Until setInner, the runs of cells no outline edge comes within a
+	// cell of, on the map or not.
+	innerOff []int32
+	inner    [][2]int32
 }
 
 // outlineRelTol is the polygonal outline's tolerance as a share of the
@@ -83,8 +90,59 @@ func (g *Grid) setMapEdges() {
 		if !ok {
 			return nil
 		}
-		return cutCells(g.GeoTransform, g.Width, g.Height, xs, ys, tol)
+		e := cutCells(g.GeoTransform, g.Width, g.Height, xs, ys, tol)
+		if e != nil {
+			e.setInner(g)
+		}
+		return e
 	})
+}
+
+// setInner keeps, of the runs of cells cutCells found no outline edge
+// near (e.inner), those on the map: a run's cells are connected and the
+// outline comes within a cell of none of them, so they lie wholly on one
+// side of it, and the round trip of the run's middle cell's centre
+// (dropOffMap) tells which.
+func (e *mapEdges) setInner(g *Grid) {
+	xs, ys := make([]float64, len(e.inner)), make([]float64, len(e.inner))
+	k := 0
+	for r := 0; r+1 < len(e.innerOff); r++ {
+		for _, run := range e.inner[e.innerOff[r]:e.innerOff[r+1]] {
+			xs[k], ys[k] = g.Centre(int(run[0]+run[1])/2, r)
+			k++
+		}
+	}
+	lons, lats := make([]float64, len(xs)), make([]float64, len(ys))
+	copy(lons, xs)
+	copy(lats, ys)
+	g.transform(g.toLL, lons, lats)
+	g.dropOffMap(xs, ys, lons, lats, nil, new(offMapScratch))
+	kept, off := e.inner[:0], make([]int32, len(e.innerOff))
+	k = 0
+	for r := 0; r+1 < len(e.innerOff); r++ {
+		off[r] = int32(len(kept))
+		for _, run := range e.inner[e.innerOff[r]:e.innerOff[r+1]] {
+			if !math.IsNaN(lons[k]) {
+				kept = append(kept, run)
+			}
+			k++
+		}
+	}
+	off[len(off)-1] = int32(len(kept))
+	e.inner, e.innerOff = slices.Clip(kept), off
+}
+
+// surelyOnMap reports whether the point (x, y) of the grid's CRS lies in
+// a cell of e.inner (NaN coordinates do not).
+func (e *mapEdges) surelyOnMap(gt *[6]float64, w, h int, x, y float64) bool {
+	c := math.Floor((x - gt[0]) / gt[1])
+	r := math.Floor((y - gt[3]) / gt[5])
+	if !(c >= 0 && c < float64(w) && r >= 0 && r < float64(h)) {
+		return false
+	}
+	runs := e.inner[e.innerOff[int(r)]:e.innerOff[int(r)+1]]
+	i, _ := slices.BinarySearchFunc(runs, int32(c), func(run [2]int32, c int32) int { return cmp.Compare(run[1], c+1) })
+	return i < len(runs) && runs[i][0] <= int32(c)
 }
 
 // unitM returns the length in metres of the grid CRS's linear unit.
@@ -331,7 +389,8 @@ func cutCells(gt [6]float64, w, h int, xs, ys []float64, tol float64) *mapEdges 
 			fillAt[r]++
 		}
 	}
-	e := &mapEdges{off: make([]int32, h+1), tol: tol, points: n}
+	e := &mapEdges{off: make([]int32, h+1), tol: tol, points: n, innerOff: make([]int32, h+1)}
+	touched := make([]int32, w) // row r+1 where an edge comes within a cell
 	full := cw * ch
 	snap := tol * 2 * (cw + ch)
 	stamp := make([]int32, w)
@@ -344,6 +403,7 @@ func cutCells(gt [6]float64, w, h int, xs, ys []float64, tol float64) *mapEdges 
 	)
 	for r := 0; r < h; r++ {
 		e.off[r] = int32(len(e.cols))
+		e.innerOff[r] = int32(len(e.inner))
 		yt := gt[3] + float64(r)*gt[5]
 		yb := yt + gt[5]
 		segs, cands, cuts = segs[:0], cands[:0], cuts[:0]
@@ -363,7 +423,13 @@ func cutCells(gt [6]float64, w, h int, xs, ys []float64, tol float64) *mapEdges 
 					cands = append(cands, int32(c))
 				}
 			}
+			// A cell either side too: an edge along a column's edge
+			// makes no candidate, and must still part the runs.
+			for c := max(c0-1, 0); c <= min(max(c1, c0)+1, w-1); c++ {
+				touched[c] = int32(r + 1)
+			}
 		}
+		e.inner = appendRuns(e.inner, touched, int32(r+1))
 		if len(cands) == 0 {
 			continue
 		}
@@ -413,10 +479,30 @@ func cutCells(gt [6]float64, w, h int, xs, ys []float64, tol float64) *mapEdges 
 		}
 	}
 	e.off[h] = int32(len(e.cols))
+	e.innerOff[h] = int32(len(e.inner))
 	if len(e.cols) == 0 {
 		return nil
 	}
 	return e
+}
+
+// appendRuns appends to runs the maximal runs [c0, c1) of columns whose
+// touched mark is not mark.
+func appendRuns(runs [][2]int32, touched []int32, mark int32) [][2]int32 {
+	start := -1
+	for c, t := range touched {
+		switch {
+		case t != mark && start < 0:
+			start = c
+		case t == mark && start >= 0:
+			runs = append(runs, [2]int32{int32(start), int32(c)})
+			start = -1
+		}
+	}
+	if start >= 0 {
+		runs = append(runs, [2]int32{int32(start), int32(len(touched))})
+	}
+	return runs
 }
 
 // clipSeg is an outline edge clipped to a row: from (xa, ya) to (xb, yb)

@@ -2,6 +2,7 @@ package extent
 
 import (
 	"math"
+	"math/rand/v2"
 	"slices"
 	"testing"
 
@@ -406,6 +407,122 @@ func forGrids(t *testing.T, cases []gridCase, fn func(t *testing.T, g *Grid)) {
 			}
 			defer g.Close()
 			fn(t, g)
+		})
+	}
+}
+
+// TestMapEdgeInnerRuns: ToLonLat, which checks only the points outside
+// the runs of cells wholly on the map (mapEdges.setInner), gives every
+// point what checking them all gives, bit for bit: 20,000 random points
+// over each grid and a margin beyond it, and every cell centre. The grids
+// are those of TestMapEdgeOffMap and an EASE-Grid 2.0 global map whose
+// columns end exactly on the map's vertical edges (there the outline runs
+// along column edges and cuts no cell, so the runs must be parted by the
+// cells beside it). At least 90% of the cells on the map must be spared
+// the check, or the runs do not do their job.
+func TestMapEdgeInnerRuns(t *testing.T) {
+	const easeX, easeY = 17367530.445161372, 7314540.830638504 // EPSG:6933's extent (PROJ, from memory; the grid only needs its x to hold)
+	forGrids(t, []gridCase{
+		{"Mollweide 100 km", "ESRI:54009", [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}, 362, 182},
+		{"Equal Earth 100 km", "EPSG:8857", [6]float64{-17300000, 100000, 0, 8400000, 0, -100000}, 346, 168},
+		{"sinusoidal 100 km", "ESRI:54008", [6]float64{-20100000, 100000, 0, 10100000, 0, -100000}, 402, 202},
+		{"EASE-Grid 2.0 edges on columns", "EPSG:6933", [6]float64{-easeX - 5*easeX/100, easeX / 100, 0, easeY + 123456, 0, -easeX / 100}, 210, 90},
+	}, func(t *testing.T, g *Grid) {
+		if g.edges == nil {
+			t.Fatal("no map edges")
+		}
+		rng := rand.New(rand.NewPCG(11, 12)) // our choice of seed
+		gt := g.GeoTransform
+		wx, wy := float64(g.Width)*gt[1], float64(g.Height)*-gt[5]
+		var xs, ys []float64
+		for range 20000 {
+			xs = append(xs, gt[0]-0.05*wx+1.1*wx*rng.Float64())
+			ys = append(ys, gt[3]+0.05*wy-1.1*wy*rng.Float64())
+		}
+		spared, on := 0, 0
+		for r := 0; r < g.Height; r++ {
+			for c := 0; c < g.Width; c++ {
+				x, y := g.Centre(c, r)
+				xs, ys = append(xs, x), append(ys, y)
+			}
+		}
+		lons, lats := make([]float64, len(xs)), make([]float64, len(xs))
+		g.ToLonLat(xs, ys, lons, lats)
+		rlon, rlat := slices.Clone(xs), slices.Clone(ys)
+		g.transform(g.toLL, rlon, rlat)
+		g.dropOffMap(xs, ys, rlon, rlat, nil, new(offMapScratch))
+		for i := range xs {
+			if math.Float64bits(lons[i]) != math.Float64bits(rlon[i]) && !(math.IsNaN(lons[i]) && math.IsNaN(rlon[i])) ||
+				math.Float64bits(lats[i]) != math.Float64bits(rlat[i]) && !(math.IsNaN(lats[i]) && math.IsNaN(rlat[i])) {
+				t.Fatalf("point (%v, %v): (%v, %v), checking every point gives (%v, %v)", xs[i], ys[i], lons[i], lats[i], rlon[i], rlat[i])
+			}
+			if i >= 20000 && !math.IsNaN(rlon[i]) {
+				on++
+				if g.edges.surelyOnMap(&g.GeoTransform, g.Width, g.Height, xs[i], ys[i]) {
+					spared++
+				}
+			}
+		}
+		t.Logf("%d of %d cells on the map spared the check", spared, on)
+		if on == 0 || float64(spared) < 0.9*float64(on) {
+			t.Errorf("%d of %d cells on the map spared the check, want 90%% or more", spared, on)
+		}
+	})
+}
+
+// TestCutCellsInnerRuns: every run of cells cutCells leaves for
+// setInner to judge lies wholly on one side of the outline (each cell
+// centre of it by the even-odd rule), on outlines whose vertical edges
+// run exactly along column edges (where they cut no cell: without a cell
+// either side marked, a row's run spans both sides) and on slanted and
+// curved ones.
+func TestCutCellsInnerRuns(t *testing.T) {
+	circle := func(n int, cx, cy, r float64) (xs, ys []float64) {
+		for i := range n {
+			a := 2 * math.Pi * float64(i) / float64(n)
+			xs, ys = append(xs, cx+r*math.Cos(a)), append(ys, cy+r*math.Sin(a))
+		}
+		return xs, ys
+	}
+	cx, cy := circle(200, 20, 15, 12.3)
+	for _, tc := range []struct {
+		name   string
+		xs, ys []float64
+	}{
+		{"vertical edges on column edges", []float64{2, 8, 8, 2}, []float64{1.5, 1.5, 9.5, 9.5}},
+		{"a notch along column edges", []float64{2, 5, 5, 6, 6, 8, 8, 2}, []float64{1.5, 1.5, 7.5, 7.5, 1.5, 1.5, 9.5, 9.5}},
+		{"slanted", []float64{1.2, 8.7, 6.1}, []float64{0.7, 2.2, 9.6}},
+		{"circle", cx, cy},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			w, h := 40, 30
+			if len(tc.xs) < 100 {
+				w, h = 10, 10
+			}
+			gt := [6]float64{0, 1, 0, float64(h), 0, -1}
+			e := cutCells(gt, w, h, tc.xs, tc.ys, 1e-9)
+			if e == nil {
+				t.Fatal("no cut cells")
+			}
+			inside := 0
+			for r := 0; r < h; r++ {
+				yc := float64(h) - float64(r) - 0.5
+				cross := ringCrossings(tc.xs, tc.ys, yc)
+				for _, run := range e.inner[e.innerOff[r]:e.innerOff[r+1]] {
+					first := insideCrossings(cross, float64(run[0])+0.5)
+					for c := run[0]; c < run[1]; c++ {
+						if insideCrossings(cross, float64(c)+0.5) != first {
+							t.Fatalf("row %d: run [%d, %d) holds cells on both sides of the outline", r, run[0], run[1])
+						}
+					}
+					if first {
+						inside++
+					}
+				}
+			}
+			if inside == 0 {
+				t.Fatal("no run inside the outline")
+			}
 		})
 	}
 }
