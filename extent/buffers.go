@@ -170,7 +170,7 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 		pl.xs, pl.ys = append(pl.xs, b[0]), append(pl.ys, b[1])
 	})
 	pl.lons, pl.lats = make([]float64, len(pl.xs)), make([]float64, len(pl.ys))
-	g.ToLonLat(pl.xs, pl.ys, pl.lons, pl.lats)
+	boundaryToLonLat(g, pl.xs, pl.ys, pl.lons, pl.lats)
 	for round := 0; round < maxRefineRounds; round++ {
 		more, n := pl.refine(g, step)
 		if n > MaxBoundaryPoints {
@@ -196,6 +196,31 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 		}
 	}
 	return lats[:k], lons[:k], nil
+}
+
+// boundaryToLonLat is g.ToLonLat for points of a region's boundary, with
+// each point whose transformation failed given the longitude and latitude
+// of edgeVertexLonLat, as shapeOf gives a vertex: a vertex on the 180th
+// meridian lands on a world map's outline (Mollweide's ellipse) a rounding
+// error outside it for about half of the latitudes. Left without
+// coordinates, such a vertex was dropped from the boundary with the
+// pieces beside it (refine leaves a piece with an end off the Earth
+// whole), a cell side each way, so the distances near it were
+// overestimated by up to that much (a cell 148 km from such a vertex on a
+// 100 km Mollweide grid measured over 200 km). Points that are off the
+// Earth stay NaN.
+func boundaryToLonLat(g *Grid, xs, ys, lons, lats []float64) {
+	g.ToLonLat(xs, ys, lons, lats)
+	if g.Geographic {
+		return
+	}
+	for i := range lons {
+		if math.IsNaN(lons[i]) || math.IsNaN(lats[i]) {
+			if lon, lat, ok := g.edgeVertexLonLat(xs[i], ys[i]); ok {
+				lons[i], lats[i] = lon, lat
+			}
+		}
+	}
 }
 
 // maxRefineRounds caps the rounds of boundaryPoints.refine. One round
@@ -250,7 +275,7 @@ func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int) {
 		}
 	}
 	nlon, nlat := make([]float64, len(nx)), make([]float64, len(ny))
-	g.ToLonLat(nx, ny, nlon, nlat)
+	boundaryToLonLat(g, nx, ny, nlon, nlat)
 	out := boundaryPoints{
 		xs: make([]float64, 0, total), ys: make([]float64, 0, total),
 		lons: make([]float64, 0, total), lats: make([]float64, 0, total),

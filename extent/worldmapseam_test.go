@@ -153,3 +153,76 @@ func writePolygonWKT(t *testing.T, path string, g *Grid, wkt string) {
 		t.Fatal(err)
 	}
 }
+
+// TestRegionBufferFlankVertex: a latitude-longitude region split at 180
+// degrees on a whole-world Mollweide grid (ESRI:54009, 100 km cells),
+// whose halves meet at vertices on the 180th meridian, 20 N and 30 N.
+// Projected, such a vertex lies on the map's outline, where PROJ's
+// inverse fails for it by a rounding error; the boundary cut for the
+// buffers dropped it with the pieces beside it, a cell side each way, so
+// a cell 148 km from the vertex (179.88 W, 31.3 N) measured over 200 km
+// and was left out of region_200km. Membership is checked against
+// brute-force geodesic distance (PROJ's geod_inverse, Karney 2013) to the
+// true outline (its edges straight in longitude and latitude, 170 E to
+// 172 W), points every 2 km (over by at most 2^2 / (8 d) km, 10 m at 50
+// km), refined to 1 mm within 5 km of a buffer's distance
+// (refinedBoundaryKm), for the cells within 15 degrees of 180 and 5 to
+// 45 N. Cells within 2 km of
+// a buffer's edge are left out (our margin: the layer's edges are kept
+// within 0.01 of a cell side, 1 km, of the true ones, and 1 km of the
+// map is at most 1.6 km on the ground there, PROJ's Tissot factors).
+func TestRegionBufferFlankVertex(t *testing.T) {
+	dir := t.TempDir()
+	east := [][2]float64{{170, 20}, {180, 20}, {180, 30}, {172, 28}, {170, 20}}
+	west := [][2]float64{{-180, 20}, {-172, 22}, {-180, 30}, {-180, 20}}
+	region := writeGeoJSON(t, dir, "split.geojson", []string{"e", "w"}, [][][2]float64{east, west})
+	outline := [][2]float64{{170, 20}, {180, 20}, {188, 22}, {180, 30}, {172, 28}, {170, 20}}
+	blats, blons := densifyRing(outline, 2000)
+	g, err := NewGrid(362, 182, [6]float64{-18100000, 100000, 0, 9100000, 0, -100000}, "ESRI:54009")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	f, err := Build(g, nil, Spec{Region: region, RegionBuffersKm: []float64{-50, 200}}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := memberIdx(t, f, "base")
+	const margin = 2.0
+	checked := map[string]int{}
+	for row := 0; row < g.Height; row++ {
+		for col := 0; col < g.Width; col++ {
+			x, y := g.Centre(col, row)
+			lon, lat := make([]float64, 1), make([]float64, 1)
+			g.ToLonLat([]float64{x}, []float64{y}, lon, lat)
+			if math.IsNaN(lon[0]) || math.Abs(math.Abs(lon[0])-180) > 15 || lat[0] < 5 || lat[0] > 45 {
+				continue
+			}
+			i := row*g.Width + col
+			inside := f.Has(base, i)
+			dist := bruteBoundaryKm(lon[0], lat[0], blats, blons)
+			if math.Abs(dist-50) < 5 || math.Abs(dist-200) < 5 {
+				dist = refinedBoundaryKm(lon[0], lat[0], dist, blats, blons)
+			}
+			for _, c := range []struct {
+				id string
+				d  float64
+			}{{"region_minus50km", -50}, {"region_200km", 200}} {
+				if math.Abs(dist-math.Abs(c.d)) <= margin {
+					continue
+				}
+				want := inside && dist > -c.d
+				if c.d > 0 {
+					want = inside || dist <= c.d
+				}
+				checked[c.id]++
+				if got := f.Has(memberIdx(t, f, c.id), i); got != want {
+					t.Errorf("%s: cell lon %.3f lat %.3f (%.1f km from the outline, inside %v): member %v, want %v", c.id, lon[0], lat[0], dist, inside, got, want)
+				}
+			}
+		}
+	}
+	if checked["region_200km"] < 200 || checked["region_minus50km"] < 200 {
+		t.Errorf("checked %v cells: too few", checked)
+	}
+}
