@@ -3,6 +3,7 @@ package extent
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/paulmach/orb"
@@ -28,10 +29,11 @@ func (b *builder) regionBuffers(path string, base Shape, baseK int, ds []float64
 	for i, d := range ds {
 		dm[i] = math.Abs(d) * 1000
 	}
-	lats, lons, err := boundaryLonLat(b.g, base, bufferStep(dm))
+	pts, err := boundaryLonLat(b.g, base, bufferStep(dm))
 	if err != nil {
 		return fmt.Errorf("extent: %s: %w", path, err)
 	}
+	lats, lons := pts.lats, pts.lons
 	type buf struct {
 		k   int
 		d   float64 // metres, signed
@@ -83,6 +85,16 @@ func (b *builder) regionBuffers(path string, base Shape, baseK int, ds []float64
 	if err != nil {
 		return fmt.Errorf("extent: base region boundary: %w", err)
 	}
+	fs := oneSites(ix)
+	if len(pts.clats) > 0 && !math.IsInf(pts.half, 1) {
+		// Bounds from the points cut every cell side, exact distances
+		// from all (see fieldSites).
+		if fs.ix, err = geodesy.NewIndex(pts.clats, pts.clons); err != nil {
+			return fmt.Errorf("extent: base region boundary: %w", err)
+		}
+		// A margin on the sampling bound, our choice: 1% and 1 m.
+		fs.half = pts.half*1.01 + 1
+	}
 	reach := newReach(lats, lons, maxD)
 	var abs []float64
 	for _, bf := range bufs {
@@ -92,7 +104,7 @@ func (b *builder) regionBuffers(path string, base Shape, baseK int, ds []float64
 	for i := range bufs {
 		bufs[i].cut = sort.SearchFloat64s(cuts, math.Abs(bufs[i].d))
 	}
-	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
+	b.distanceField(fs, reach, maxD, cuts, func(row int, near []rowRuns) {
 		// A grown member is the base or within d of its boundary; a shrunk
 		// one is the base minus the cells within |d|.
 		for _, bf := range bufs {
@@ -144,7 +156,7 @@ func edgeSteps(a, b orb.Point, step float64) float64 {
 // Mollweide map), and at latitude-longitude cells of any size. Seam
 // edges (see seamEdge) are left out. A boundary that would take more
 // than MaxBoundaryPoints points is an error.
-func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err error) {
+func boundaryLonLat(g *Grid, s Shape, step float64) (pts boundarySites, err error) {
 	side := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
 	total, longest := 0.0, 0.0
 	boundaryEdges(g, s, func(a, b orb.Point) {
@@ -156,7 +168,7 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 		return fmt.Errorf("region buffers: the base region's boundary would take %.3g points, more than %d: it is cut every cell side (%g in the raster's CRS) and, so that a distance at the smallest buffer is right to 1 m, at least every %.3g m on the ground. Either the region reaches far outside the raster (its longest edge runs about %.3g units of the raster's CRS; perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection): clip it to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates); or its boundary is too long for a buffer that small: give larger --region-buffers; or give no --region-buffers", total, MaxBoundaryPoints, side, step, longest)
 	}
 	if total > MaxBoundaryPoints {
-		return nil, nil, tooMany(total)
+		return boundarySites{}, tooMany(total)
 	}
 	pl := boundaryPoints{xs: make([]float64, 0, int(total)), ys: make([]float64, 0, int(total))}
 	boundaryEdges(g, s, func(a, b orb.Point) {
@@ -171,16 +183,61 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 	})
 	pl.lons, pl.lats = make([]float64, len(pl.xs)), make([]float64, len(pl.ys))
 	boundaryToLonLat(g, pl.xs, pl.ys, pl.lons, pl.lats)
+	pts.half = pl.widest() / 2
+	pts.clats, pts.clons = onEarth(slices.Clone(pl.lats), slices.Clone(pl.lons))
 	for round := 0; round < maxRefineRounds; round++ {
 		more, n := pl.refine(g, step)
 		if n > MaxBoundaryPoints {
-			return nil, nil, tooMany(float64(n))
+			return boundarySites{}, tooMany(float64(n))
 		}
 		if !more {
 			break
 		}
 	}
-	lons, lats = pl.lons, pl.lats
+	pts.lats, pts.lons = onEarth(pl.lats, pl.lons)
+	if len(pts.lats) == len(pts.clats) {
+		// Nothing was cut finer: one set.
+		pts.clats, pts.clons, pts.half = nil, nil, 0
+	}
+	return pts, nil
+}
+
+// boundarySites are the points boundaryLonLat cuts a boundary into
+// (lats, lons) and, when it cut any piece finer than a cell side, the
+// points of the first cut every cell side (clats, clons) and half the
+// largest ground length of a piece between two of them (an upper bound:
+// geodesy.ChordUpper), for the field's bounds (fieldSites).
+type boundarySites struct {
+	lats, lons   []float64
+	clats, clons []float64
+	half         float64
+}
+
+// widest returns an upper bound on the ground length of the longest
+// piece between two neighbours of an edge whose ends are both on the
+// Earth (geodesy.ChordUpper; +Inf past 3000 km).
+func (pl *boundaryPoints) widest() float64 {
+	w := 0.0
+	for j, a := range pl.first {
+		b := len(pl.xs)
+		if j+1 < len(pl.first) {
+			b = pl.first[j+1]
+		}
+		pa := geodesy.ECEF(pl.lats[a], pl.lons[a])
+		for i := a + 1; i < b; i++ {
+			pb := geodesy.ECEF(pl.lats[i], pl.lons[i])
+			if !math.IsNaN(pa[0]) && !math.IsNaN(pb[0]) {
+				w = math.Max(w, geodesy.ChordUpper(&pa, &pb))
+			}
+			pa = pb
+		}
+	}
+	return w
+}
+
+// onEarth drops the points with no position (NaN) from lats, lons, in
+// place, and brings longitudes beyond a turn back one.
+func onEarth(lats, lons []float64) ([]float64, []float64) {
 	k := 0
 	for i := range lats {
 		if !math.IsNaN(lats[i]) {
@@ -195,7 +252,7 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (lats, lons []float64, err e
 			k++
 		}
 	}
-	return lats[:k], lons[:k], nil
+	return lats[:k], lons[:k]
 }
 
 // boundaryToLonLat is g.ToLonLat for points of a region's boundary, with
@@ -414,7 +471,7 @@ func (b *builder) pointBuffers(pts []LonLat, which string, ds []float64) error {
 	}
 	reach := newReach(lats, lons, maxD)
 	// ds is sorted and unique, so dm is the cut list itself.
-	b.distanceField(ix, reach, maxD, dm, func(row int, near []rowRuns) {
+	b.distanceField(oneSites(ix), reach, maxD, dm, func(row int, near []rowRuns) {
 		for j, k := range members {
 			b.f.cells[k].rows[row] = near[j]
 		}

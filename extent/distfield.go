@@ -73,7 +73,7 @@ const fieldWindow = 4096
 // bounds straddle one of them. Queries go through prepared points
 // (bandPoints), each tree query starting from the previous one's
 // chord-nearest site.
-func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
+func (b *builder) distanceField(fs fieldSites, reach reachBox, maxD float64, cuts []float64, rowDone func(row int, near []rowRuns)) {
 	g := b.g
 	bands := make(chan int)
 	var wg sync.WaitGroup
@@ -81,7 +81,7 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			fw := b.newFieldWorker(ix, reach, maxD, cuts)
+			fw := b.newFieldWorker(&fs, reach, maxD, cuts)
 			for r0 := range bands {
 				fw.band(r0, rowDone)
 			}
@@ -94,11 +94,54 @@ func (b *builder) distanceField(ix *geodesy.Index, reach reachBox, maxD float64,
 	wg.Wait()
 }
 
+// fieldSites are the sites a distance field measures to. Bounds, and the
+// lists of sites near a tile, come from ix; exact distances from exact.
+// Most often the two are one. For a region's boundary (boundaryLonLat)
+// ix holds the points cut every cell side, exact those and the points
+// cut between them down to bufferStep: every point of ix is one of
+// exact's, so the distance D' to exact's is at most the distance D to
+// ix's, and a boundary whose pieces between ix's points are at most
+// 2 half long on the ground is, by the sampling bound of bufferStep, at
+// least sqrt(D^2 - half^2) away, and exact's points lie on it. So a
+// bound [lo, hi] on D gives [lower(lo), hi] on D', and D' <= d whenever
+// D <= reach(d). The field queries ix where cells are settled from their
+// bounds and exact only where a cut lies between them: with 29 cuts on
+// a 27-million-cell grid, exact's 2.5 times more points near every
+// queried cell had made the family 40% slower to build.
+type fieldSites struct {
+	ix, exact *geodesy.Index
+	half      float64
+}
+
+// oneSites returns the fieldSites of one index.
+func oneSites(ix *geodesy.Index) fieldSites { return fieldSites{ix: ix, exact: ix} }
+
+// lower returns a lower bound on the distance to exact's sites from one,
+// lo, on the distance to ix's: lo itself when they are one.
+func (fs *fieldSites) lower(lo float64) float64 {
+	if fs.half == 0 {
+		return lo
+	}
+	if l2 := lo*lo - fs.half*fs.half; l2 > 0 {
+		return math.Sqrt(l2) * (1 - 1e-9)
+	}
+	return 0
+}
+
+// reach returns a distance to ix's sites beyond which the distance to
+// exact's exceeds d: d itself when they are one.
+func (fs *fieldSites) reach(d float64) float64 {
+	if fs.half == 0 || math.IsInf(d, 1) {
+		return d
+	}
+	return math.Sqrt(d*d+fs.half*fs.half)*(1+1e-9) + 1e-3
+}
+
 // fieldWorker is one distanceField worker and its buffers, reused from
 // band to band and window to window.
 type fieldWorker struct {
 	b     *builder
-	ix    *geodesy.Index
+	fs    *fieldSites
 	cols  int // the window's width: fieldWindow, or b.windowCols when set
 	fl    *field
 	pts   *bandPoints
@@ -110,13 +153,13 @@ type fieldWorker struct {
 	carryRoom [tileSide]float64
 }
 
-func (b *builder) newFieldWorker(ix *geodesy.Index, reach reachBox, maxD float64, cuts []float64) *fieldWorker {
+func (b *builder) newFieldWorker(fs *fieldSites, reach reachBox, maxD float64, cuts []float64) *fieldWorker {
 	cols := fieldWindow
 	if b.windowCols > 0 {
 		cols = b.windowCols
 	}
 	return &fieldWorker{
-		b: b, ix: ix, cols: cols,
+		b: b, fs: fs, cols: cols,
 		fl:    &field{cuts: cuts, maxD: maxD, w: b.g.Width},
 		pts:   newBandPoints(reach),
 		steps: newBandSteps(),
@@ -194,11 +237,11 @@ func (fw *fieldWorker) window(r0, r1, a, e int) {
 // when one query settles it, else in quarters down to walkSide, else
 // cell by cell (see distanceField).
 func (fw *fieldWorker) classify(t0, t1, c0, c1 int, near *geodesy.Near) {
-	ix, fl, steps := fw.ix, fw.fl, fw.steps
+	fs, fl, steps := fw.fs, fw.fl, fw.steps
 	hi, rho := math.Inf(1), 0.0
 	if t1-t0 > 2 && c1-c0 > 2 {
 		var ok bool
-		ok, hi, rho = fw.b.wholeTile(ix, fl, fw.pts, near, t0, t1, c0, c1, fw.rhos)
+		ok, hi, rho = fw.b.wholeTile(fs, fl, fw.pts, near, t0, t1, c0, c1, fw.rhos)
 		if ok {
 			return
 		}
@@ -207,7 +250,7 @@ func (fw *fieldWorker) classify(t0, t1, c0, c1 int, near *geodesy.Near) {
 				// The sites that may be nearest to some cell of the
 				// tile serve its quarters.
 				near = &steps.none
-				if ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
+				if fs.ix.NearSitesUpTo(&fl.centre, hi+2*rho, maxNear, &steps.outer) {
 					near = &steps.outer
 				}
 			}
@@ -219,7 +262,7 @@ func (fw *fieldWorker) classify(t0, t1, c0, c1 int, near *geodesy.Near) {
 			return
 		}
 	}
-	walkTile(ix, fl, fw.pts, steps, near, t0, t1, c0, c1, hi, rho)
+	walkTile(fs, fl, fw.pts, steps, near, t0, t1, c0, c1, hi, rho)
 }
 
 // rowCuts gathers the runs of one row for each of m cuts (ascending) from
@@ -371,7 +414,7 @@ func classGap(cuts []float64, lo, hi float64) (gap float64, cls int) {
 // of the field's band. When it did not, hi bounds the centre
 // cell's distance from above and rho the distance from the centre cell to
 // any cell of the tile (hi is +Inf when either is unknown).
-func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos *tileRadii) (settled bool, hi, rho float64) {
+func (b *builder) wholeTile(fs *fieldSites, fl *field, pts *bandPoints, near *geodesy.Near, r0, r1, c0, c1 int, rhos *tileRadii) (settled bool, hi, rho float64) {
 	g := b.g
 	band, maxD := fl.band, fl.maxD
 	kc, cc := (r0+r1)/2-band, (c0+c1)/2
@@ -420,8 +463,9 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 		lo, hi, ok = near.QuickBounds(&pt)
 	}
 	if !ok {
-		lo, hi = pts.bounds(ix, &pt, maxD+rho)
+		lo, hi = pts.bounds(fs.ix, &pt, fs.reach(maxD+rho))
 	}
+	lo = fs.lower(lo)
 	if !math.IsInf(hi, 1) {
 		// (lo - rho > maxD gives a gap above rho: every cut is below.)
 		if room, k := fl.gap(lo, hi); room > rho {
@@ -432,10 +476,10 @@ func (b *builder) wholeTile(ix *geodesy.Index, fl *field, pts *bandPoints, near 
 			// would not settle the tile either.
 			return false, hi, rho
 		} else {
-			_, d := ix.NearestAt(&pt, maxD+rho)
+			_, d := fs.exact.NearestAt(&pt, maxD+rho)
 			room, k := fl.gap(d, d)
 			if !(d-rho > maxD) && !(room > rho) {
-				return false, d, rho
+				return false, fs.reach(d), rho
 			}
 			if !(d-rho > maxD) {
 				cls, cellRoom = k, room-rho
@@ -508,7 +552,7 @@ func sphereDistance(lat1, lon1, lat2, lon2 float64) float64 {
 // kilometres, which costs a cell an exact query only in the rare case
 // that a cut lies in those metres). Cells
 // outside the reach box (pts.in) are farther than maxD.
-func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
+func walkTile(fs *fieldSites, fl *field, pts *bandPoints, st *bandSteps, near *geodesy.Near, t0, t1, c0, c1 int, tileHi, tileRho float64) {
 	band, maxD, m, w := fl.band, fl.maxD, len(fl.cuts), fl.w
 	// The field holds columns [o, o+s): column c of a row is at c - o.
 	o, s := fl.off, fl.stride
@@ -575,7 +619,7 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 				// between them. Any value in [lo, hi] is then in the
 				// cell's class.
 				if !listed {
-					near, listed = st.nearSites(ix, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho), true
+					near, listed = st.nearSites(fs, maxD, pts, band, t0, t1, c0, c1, tileHi, tileRho), true
 				}
 				pt := pts.at(k, c)
 				lo, hi, ok := 0.0, 0.0, false
@@ -583,8 +627,9 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 					lo, hi, ok = near.StraightBounds(&pt)
 				}
 				if !ok {
-					lo, hi = pts.bounds(ix, &pt, maxD)
+					lo, hi = pts.bounds(fs.ix, &pt, fs.reach(maxD))
 				}
+				lo = fs.lower(lo)
 				if math.IsInf(hi, 1) {
 					row[x] = uint16(m)
 					continue
@@ -592,7 +637,7 @@ func walkTile(ix *geodesy.Index, fl *field, pts *bandPoints, st *bandSteps, near
 				var k int
 				room, k = fl.gap(lo, hi)
 				if !(room > 0) {
-					_, dist := ix.NearestAt(&pt, maxD)
+					_, dist := fs.exact.NearestAt(&pt, maxD)
 					if math.IsInf(dist, 1) {
 						row[x] = uint16(m)
 						continue
@@ -655,11 +700,11 @@ const maxWalkNear = 256
 // than maxWalkNear, when a coordinate is missing, or when no site lies within
 // maxD + rho of c (then no cell has one within maxD): nearSites then
 // returns nil.
-func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int, hi, rho float64) *geodesy.Near {
+func (st *bandSteps) nearSites(fs *fieldSites, maxD float64, pts *bandPoints, band, t0, t1, c0, c1 int, hi, rho float64) *geodesy.Near {
 	kc, cc := (t0+t1)/2-band, (c0+c1)/2
 	pt := pts.at(kc, cc)
 	if !math.IsInf(hi, 1) {
-		return st.listNear(ix, &pt, hi+2*rho)
+		return st.listNear(fs.ix, &pt, hi+2*rho)
 	}
 	clat, clon := pts.ll(kc, cc)
 	if math.IsNaN(clat) {
@@ -675,11 +720,11 @@ func (st *bandSteps) nearSites(ix *geodesy.Index, maxD float64, pts *bandPoints,
 		}
 	}
 	rho = rho*1.02 + 1
-	_, hi = pts.bounds(ix, &pt, maxD+rho)
+	_, hi = pts.bounds(fs.ix, &pt, fs.reach(maxD+rho))
 	if math.IsInf(hi, 1) || math.IsNaN(hi) {
 		return nil
 	}
-	return st.listNear(ix, &pt, hi+2*rho)
+	return st.listNear(fs.ix, &pt, hi+2*rho)
 }
 
 // listNear lists the sites within radius of pt, or returns nil when they

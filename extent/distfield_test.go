@@ -173,7 +173,7 @@ func fieldRuns(g *Grid, cols int, ix *geodesy.Index, reach reachBox, maxD float6
 	got := make([][]rowRuns, g.Height)
 	var mu sync.Mutex
 	b := &builder{g: g, windowCols: cols}
-	b.distanceField(ix, reach, maxD, cuts, func(row int, near []rowRuns) {
+	b.distanceField(oneSites(ix), reach, maxD, cuts, func(row int, near []rowRuns) {
 		mu.Lock()
 		got[row] = near
 		mu.Unlock()
@@ -272,6 +272,6 @@ func BenchmarkDistanceFieldWide(b *testing.B) {
 	bl := &builder{g: g}
 	b.ReportAllocs()
 	for b.Loop() {
-		bl.distanceField(ix, reach, cuts[2], cuts, func(int, []rowRuns) {})
+		bl.distanceField(oneSites(ix), reach, cuts[2], cuts, func(int, []rowRuns) {})
 	}
 }

@@ -273,7 +273,7 @@ func (b *builder) hull(train []LonLat, ds []float64) error {
 			}
 		}
 		reach := newReach(lats, lons, maxD)
-		b.distanceField(ix, reach, maxD, cuts, func(row int, n []rowRuns) { near[row] = n })
+		b.distanceField(oneSites(ix), reach, maxD, cuts, func(row int, n []rowRuns) { near[row] = n })
 	}
 	// The box around the densified boundary holds the hull (its edges'
 	// poleward bulge included, being sampled; a pole inside the hull widens

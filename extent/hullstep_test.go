@@ -137,12 +137,34 @@ func projectedRing(g *Grid, ll [][2]float64) Shape {
 // checkBoundarySpacing is TestBoundarySpacing on one grid and shape (one
 // ring, no seam edge: its last point is its first).
 func checkBoundarySpacing(t *testing.T, g *Grid, s Shape, step float64) {
-	lats, lons, err := boundaryLonLat(g, s, step)
+	pts, err := boundaryLonLat(g, s, step)
 	if err != nil {
 		t.Fatal(err)
 	}
+	lats, lons := pts.lats, pts.lons
 	if len(lats) < 4 {
 		t.Fatalf("%d boundary points", len(lats))
+	}
+	// The points of the first cut (the field's bounds, fieldSites) are
+	// among the final ones, and no two neighbours lie farther apart than
+	// 2 half.
+	if pts.clats != nil {
+		all := map[[2]float64]bool{}
+		for i := range lats {
+			all[[2]float64{lats[i], lons[i]}] = true
+		}
+		for i := range pts.clats {
+			if !all[[2]float64{pts.clats[i], pts.clons[i]}] {
+				t.Fatalf("first-cut point (%v, %v) is not among the boundary's points", pts.clats[i], pts.clons[i])
+			}
+			if i > 0 {
+				if d := geodesy.Distance(pts.clats[i-1], pts.clons[i-1], pts.clats[i], pts.clons[i]); d > 2*pts.half {
+					t.Fatalf("first-cut points %.1f m apart, half is %.1f m", d, pts.half)
+				}
+			}
+		}
+	} else if pts.half != 0 {
+		t.Fatalf("half %g with no first cut", pts.half)
 	}
 	first := 0.0
 	side := math.Min(g.GeoTransform[1], -g.GeoTransform[5])
