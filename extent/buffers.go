@@ -218,6 +218,18 @@ type boundarySites struct {
 // Earth (geodesy.ChordUpper; +Inf past 3000 km).
 func (pl *boundaryPoints) widest() float64 {
 	w := 0.0
+	pl.pieces(func(_ int, pa, pb *[3]float64) {
+		if !math.IsNaN(pa[0]) && !math.IsNaN(pb[0]) {
+			w = math.Max(w, geodesy.ChordUpper(pa, pb))
+		}
+	})
+	return w
+}
+
+// pieces calls f with each piece between two neighbours of an edge: the
+// index of its second point and the ECEF positions of its ends (NaN off
+// the Earth).
+func (pl *boundaryPoints) pieces(f func(i int, pa, pb *[3]float64)) {
 	for j, a := range pl.first {
 		b := len(pl.xs)
 		if j+1 < len(pl.first) {
@@ -226,13 +238,10 @@ func (pl *boundaryPoints) widest() float64 {
 		pa := geodesy.ECEF(pl.lats[a], pl.lons[a])
 		for i := a + 1; i < b; i++ {
 			pb := geodesy.ECEF(pl.lats[i], pl.lons[i])
-			if !math.IsNaN(pa[0]) && !math.IsNaN(pb[0]) {
-				w = math.Max(w, geodesy.ChordUpper(&pa, &pb))
-			}
+			f(i, &pa, &pb)
 			pa = pb
 		}
 	}
-	return w
 }
 
 // onEarth drops the points with no position (NaN) from lats, lons, in
@@ -305,21 +314,12 @@ type boundaryPoints struct {
 func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int) {
 	parts := make([]int32, len(pl.xs))
 	total = len(pl.xs)
-	for j, a := range pl.first {
-		b := len(pl.xs)
-		if j+1 < len(pl.first) {
-			b = pl.first[j+1]
+	pl.pieces(func(i int, pa, pb *[3]float64) {
+		if m := pieceParts(pa, pb, step); m > 1 {
+			parts[i] = int32(m)
+			total += m - 1
 		}
-		pa := geodesy.ECEF(pl.lats[a], pl.lons[a])
-		for i := a + 1; i < b; i++ {
-			pb := geodesy.ECEF(pl.lats[i], pl.lons[i])
-			if m := pieceParts(&pa, &pb, step); m > 1 {
-				parts[i] = int32(m)
-				total += m - 1
-			}
-			pa = pb
-		}
-	}
+	})
 	if total == len(pl.xs) || total > MaxBoundaryPoints {
 		return false, total
 	}
