@@ -165,7 +165,7 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (pts boundarySites, err erro
 		longest = math.Max(longest, n*side)
 	})
 	tooMany := func(total float64) error {
-		return fmt.Errorf("region buffers: the base region's boundary would take %.3g points, more than %d: it is cut every cell side (%g in the raster's CRS) and, so that a distance at the smallest buffer is right to 1 m, at least every %.3g m on the ground. Either the region reaches far outside the raster (its longest edge runs about %.3g units of the raster's CRS; perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection): clip it to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates); or its boundary is too long for a buffer that small: give larger --region-buffers; or give no --region-buffers", total, MaxBoundaryPoints, side, step, longest)
+		return fmt.Errorf("region buffers: the base region's boundary would take %.3g points, more than %d: it is cut every cell side (%g in the raster's CRS) and, so that a distance at the smallest buffer is right to 1 m, at least every %.3g m on the ground. Either the region reaches far outside the raster (its longest edge runs about %.3g units of the raster's CRS; perhaps where that CRS stretches without bound, such as the opposite pole of a polar projection): clip the region to the area around the raster (e.g. ogr2ogr -clipdst XMIN YMIN XMAX YMAX, in the region's coordinates); or its boundary is too long for a buffer that small: give larger --region-buffers; or give no --region-buffers", total, MaxBoundaryPoints, side, step, longest)
 	}
 	if total > MaxBoundaryPoints {
 		return boundarySites{}, tooMany(total)

@@ -199,7 +199,7 @@ func TestBoundaryTooManyPoints(t *testing.T) {
 	if err == nil {
 		t.Fatal("a 0.1 mm region buffer on a 4,000 km boundary was accepted")
 	}
-	for _, want := range []string{region, "more than 33554432", "give larger --region-buffers", "clip it"} {
+	for _, want := range []string{region, "more than 33554432", "give larger --region-buffers", "clip the region"} {
 		if !strings.Contains(err.Error(), want) {
 			t.Errorf("message %q does not say %q", err, want)
 		}
