@@ -183,12 +183,14 @@ func boundaryLonLat(g *Grid, s Shape, step float64) (pts boundarySites, err erro
 	})
 	pl.lons, pl.lats = make([]float64, len(pl.xs)), make([]float64, len(pl.ys))
 	boundaryToLonLat(g, pl.xs, pl.ys, pl.lons, pl.lats)
-	pts.half = pl.widest() / 2
 	pts.clats, pts.clons = onEarth(slices.Clone(pl.lats), slices.Clone(pl.lons))
 	for round := 0; round < maxRefineRounds; round++ {
-		more, n := pl.refine(g, step)
+		more, n, widest := pl.refine(g, step)
 		if n > MaxBoundaryPoints {
 			return boundarySites{}, tooMany(float64(n))
+		}
+		if round == 0 {
+			pts.half = widest / 2
 		}
 		if !more {
 			break
@@ -211,19 +213,6 @@ type boundarySites struct {
 	lats, lons   []float64
 	clats, clons []float64
 	half         float64
-}
-
-// widest returns an upper bound on the ground length of the longest
-// piece between two neighbours of an edge whose ends are both on the
-// Earth (geodesy.ChordUpper; +Inf past 3000 km).
-func (pl *boundaryPoints) widest() float64 {
-	w := 0.0
-	pl.pieces(func(_ int, pa, pb *[3]float64) {
-		if !math.IsNaN(pa[0]) && !math.IsNaN(pb[0]) {
-			w = math.Max(w, geodesy.ChordUpper(pa, pb))
-		}
-	})
-	return w
 }
 
 // pieces calls f with each piece between two neighbours of an edge: the
@@ -308,20 +297,27 @@ type boundaryPoints struct {
 // longer on the ground than step into ceil(u / step) equal parts in the
 // CRS, u its geodesy.ChordUpper (pieces past 3000 km, where that bound
 // gives up, in two), and transforms the new points. It reports whether it
-// cut any piece and the number of points it would hold after cutting
-// (when over MaxBoundaryPoints, it stops there and cuts nothing). Pieces
-// with an end off the Earth are left whole.
-func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int) {
+// cut any piece, the number of points it would hold after cutting (when
+// over MaxBoundaryPoints, it stops there and cuts nothing) and the largest
+// ChordUpper of a piece it was given (+Inf past 3000 km), an upper bound
+// on the longest piece's ground length. Pieces with an end off the Earth
+// are left whole and not measured.
+func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int, widest float64) {
 	parts := make([]int32, len(pl.xs))
 	total = len(pl.xs)
 	pl.pieces(func(i int, pa, pb *[3]float64) {
-		if m := pieceParts(pa, pb, step); m > 1 {
+		if math.IsNaN(pa[0]) || math.IsNaN(pb[0]) {
+			return
+		}
+		u := geodesy.ChordUpper(pa, pb)
+		widest = math.Max(widest, u)
+		if m := pieceParts(u, step); m > 1 {
 			parts[i] = int32(m)
 			total += m - 1
 		}
 	})
 	if total == len(pl.xs) || total > MaxBoundaryPoints {
-		return false, total
+		return false, total, widest
 	}
 	var nx, ny []float64
 	for i, m := range parts {
@@ -354,18 +350,15 @@ func (pl *boundaryPoints) refine(g *Grid, step float64) (more bool, total int) {
 		out.lons, out.lats = append(out.lons, pl.lons[i]), append(out.lats, pl.lats[i])
 	}
 	*pl = out
-	return true, total
+	return true, total, widest
 }
 
-// pieceParts returns the number of equal parts a piece between the ECEF
-// positions pa and pb is cut into so that none may be longer than step on
-// the ground: 1 when its ChordUpper is at most step or an end is off the
-// Earth (NaN), 2 when it is farther than ChordUpper reaches.
-func pieceParts(pa, pb *[3]float64, step float64) int {
-	if math.IsNaN(pa[0]) || math.IsNaN(pb[0]) {
-		return 1
-	}
-	u := geodesy.ChordUpper(pa, pb)
+// pieceParts returns the number of equal parts a piece whose
+// geodesy.ChordUpper is u is cut into so that none may be longer than
+// step on the ground: 1 when u is at most step, 2 when the piece is
+// farther than ChordUpper reaches (u infinite), else
+// ceil(u (1 + refineMargin) / step).
+func pieceParts(u, step float64) int {
 	switch {
 	case math.IsInf(u, 1):
 		return 2
