@@ -140,7 +140,7 @@ var (
 const maxTaylorDist = 6e6
 
 // maxFarDist is the largest distance (m) at which the far form of the
-// Taylor bracket is used (from maxTaylorDist on): our choice, 970 km short
+// Taylor bracket is used (from maxTaylorDist on): our choice, 70 km short
 // of pi b = 19 970 km, below which no point of the ellipsoid lies on a
 // site's cut locus. By Klingenberg's lemma (W. Klingenberg, Ann. of Math.
 // 69:654-666, 1959; do Carmo, Riemannian Geometry, 1992, ch. 13, prop.
@@ -148,12 +148,15 @@ const maxTaylorDist = 6e6
 // curvature is at most 1/b^2 is at least the smaller of pi b and half
 // its shortest closed geodesic, a meridian (40 008 km) on WGS84; so the
 // distance to a site is smooth, and the Hessian comparison holds, at every
-// point within it but the site.
-const maxFarDist = 19e6
-
-// farAMin is a lower bound on the far form's A (farHessian) at any
-// distance up to maxFarDist: cot(maxFarDist/b)/b, lowered by 1%.
-var farAMin = 1.01 * sqrtKmax * math.Cos(maxFarDist*sqrtKmax) / math.Sin(maxFarDist*sqrtKmax)
+// point within it but the site. The far form's lower Hessian bound
+// cot(r/b)/b falls towards -Inf at pi b: it is -1.4e-5 per metre at
+// maxFarDist, which lowers the bracket of a cell 3 km from its anchor by
+// 64 m. 70 km also keeps sin(r/b), the divisor of farCot, above 0.01,
+// where farCot's 1e-12 covers its rounding many times over. Until
+// 2026-12 this was 19 000 km, and the cells within 1,000 km of the
+// antipodes of a dense cluster took the index's query, 50 to 60
+// microseconds of CPU a cell (BenchmarkFieldBracketAntipode).
+const maxFarDist = 19.9e6
 
 // lonLat describes a north-up latitude-longitude grid: centre of cell
 // (c, r) at (west + (c+0.5) dlon, north + (r+0.5) dlat) degrees, as
@@ -452,6 +455,10 @@ type bracketer struct {
 	colC, colS []float64
 	csites     []chordSite // the super-tile's candidates by chord from its centre
 	kept       []int       // denseSites' candidates kept
+	// antipodePrune's geodesics from the super-tile's centre to each of
+	// b.cands, when it measured them all and kept more than
+	// maxCandidates; else nil.
+	antiD []float64
 	// The last exact-bin cell asked for (Binner.Cell; NaN ends hold
 	// nothing) and the floor grid's scale.
 	cellLo, cellHi float64
@@ -584,8 +591,12 @@ func (b *bracketer) super(sr, scol int) {
 		case len(b.cands) > maxCandidates:
 			// Dense training points: the few candidates that can be
 			// nearest somewhere in the super-tile, taken as a sparse
-			// one's.
-			b.farPrune(clat, clon, big, rho, false)
+			// one's; round their antipodes, where farPrune's bounds end,
+			// from a geodesic to each.
+			b.antiD = nil
+			if !b.farPrune(clat, clon, big, rho, false) {
+				b.antipodePrune(clat, clon, big)
+			}
 		case len(b.cands) >= farPruneMin:
 			// Thousands of kilometres from a few points close together,
 			// the same spares the anchors a geodesic to each.
@@ -600,6 +611,11 @@ func (b *bracketer) super(sr, scol int) {
 			// nearest to a cell of the super-tile (denseSites).
 			skip := b.chords(y1, y2, x1, x2, clat, clon, rho)
 			dense := b.denseSites(clat, clon, big, rho)
+			if !dense && b.antiD != nil {
+				// Round the antipodes: every candidate, measured at the
+				// centre by antipodePrune, with the 1-Lipschitz bracket.
+				dense = b.antipodeSites(clat, clon)
+			}
 			// j0 is the stencil entry of block cell (0, 0).
 			j0 := (b.y0-cr+SuperTile/2)*SuperTile + b.x0 - cc + SuperTile/2
 			if !skip {
@@ -1352,6 +1368,111 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOn
 	return true
 }
 
+// antipodePrune is farPrune where its brackets end: round the antipodes
+// of training points close together, where every candidate is more than
+// maxFarDist away and the index's query measures most of them at every
+// cell (100 to 200 geodesics a cell around 300 points). It measures the
+// geodesic from the super-tile's centre c to each candidate (d_k, exact
+// to Inverse's 15 nm; we allow 1 mm + 1e-9 d_k) and keeps, as farPrune
+// does, the candidates that can be nearest to a cell: with j the
+// candidate nearest to c, k is left out when
+//
+//	d_k - d_j > T 2 sin(D_jk/(2b)) / min(sin(r1/b), sin(r2/b)),
+//
+// T the longest geodesic from c to a cell, D_jk the geodesic from j to k
+// and [r1, r2] = [min(d_j, d_k) - T, max(d_j, d_k) + T] the range of
+// both distances along the geodesic from c to a cell: the bound on the
+// angle the two sites make at a point derived at farPrune, which holds
+// while every point of the geodesic from j to k is within pi b of that
+// point (Klingenberg's lemma, see maxFarDist), ensured here by r2 + D_jk
+// below pi b. Near the antipodes the distances to all the sites are
+// nearly parallel functions (sin(r/b) is small, but so is D/b against
+// the differences of d_k across a cluster), so a few sites remain.
+//
+// It is tried only when the candidate of shortest chord lies beyond
+// maxTaylorDist from c (one geodesic), and reports false, leaving b.cands
+// as they were, when a bound does not apply (r1 <= 0 or r2 + D_jk >= pi
+// b: within about T of a site's cut locus, a few tens of kilometres from
+// its antipode) or when more than maxCandidates remain. It costs a
+// geodesic per candidate and super-tile, and one per pair of j and
+// candidate (kept across super-tiles, siteFans).
+func (b *bracketer) antipodePrune(clat, clon float64, st *stencil) bool {
+	if !st.ok {
+		return false
+	}
+	ix := b.f.ix
+	first, _ := b.chordNearest(geodesy.ECEF(clat, clon))
+	if first < 0 {
+		return false
+	}
+	flat, flon := ix.Site(b.cands[first])
+	if !(geodesy.Distance(clat, clon, flat, flon) > maxTaylorDist) {
+		return false
+	}
+	d := b.sc.farLo[:0]
+	j := -1
+	for _, k := range b.cands {
+		slat, slon := ix.Site(k)
+		dk := geodesy.Distance(clat, clon, slat, slon)
+		d = append(d, dk)
+		q := len(d) - 1
+		if j < 0 || dk < d[j] {
+			j = q
+		}
+	}
+	b.sc.farLo = d
+	sj := b.cands[j]
+	jlat, jlon := ix.Site(sj)
+	fan := b.sc.fans.fan(ix, sj)
+	t := st.tmax
+	eps := func(v float64) float64 { return 1e-3 + 1e-9*v }
+	b.kept = b.kept[:0]
+	for q, k := range b.cands {
+		if q != j {
+			// An upper bound on D_jk, and the range of both distances.
+			djk := pairAt(ix, fan, jlat, jlon, k).d
+			djk += eps(djk)
+			r1 := min(d[j]-eps(d[j]), d[q]-eps(d[q])) - t
+			r2 := max(d[j]+eps(d[j]), d[q]+eps(d[q])) + t
+			if r1 > 0 && r2+djk < math.Pi*geodesy.SemiMinor*(1-1e-9) {
+				// 2 sin(D/2b) <= D/b; the divisor lowered for its
+				// rounding.
+				g := t * djk * sqrtKmax / (min(math.Sin(r1*sqrtKmax), math.Sin(r2*sqrtKmax)) * (1 - 1e-12))
+				if (d[q]-eps(d[q]))-(d[j]+eps(d[j]))-g > 1e-3 {
+					continue
+				}
+			}
+		}
+		b.kept = append(b.kept, k)
+	}
+	if len(b.kept) > maxCandidates {
+		b.antiD = d
+		return false
+	}
+	b.cands = append(b.cands[:0], b.kept...)
+	return true
+}
+
+// antipodeSites sets b.measured to every candidate of the super-tile
+// (centre (clat, clon)) at the distance antipodePrune measured, with the
+// 1-Lipschitz bracket (neither Taylor form: their Hessian bounds end
+// short of the antipodes), by increasing distance, and reports true: the
+// list denseCell's exact computation takes, which measures at each cell
+// only the sites whose bracket reaches the smallest upper end, those
+// within twice the cell's distance from the centre of the nearest there
+// (a few tens of the hundreds the index's query measures so near the
+// antipodes, where its chord bounds say nothing).
+func (b *bracketer) antipodeSites(clat, clon float64) bool {
+	b.measured = b.measured[:0]
+	for q, k := range b.cands {
+		slat, slon := b.f.ix.Site(k)
+		f0 := b.antiD[q]
+		b.measured = append(b.measured, anchorSite{k: k, f0: f0, inv: 1 / f0, margin: 1e-3 + 1e-9*f0, slat: slat, slon: slon})
+	}
+	slices.SortStableFunc(b.measured, func(x, y anchorSite) int { return cmp.Compare(x.f0, y.f0) })
+	return true
+}
+
 // siteBrackets appends to lo and hi, for each site ks[q] of ix, a bracket
 // of its distance from a point c, from the site s0 measured at c (the
 // geodesic from c to s0 has length f0 and azimuth az2 at s0), without a
@@ -1551,7 +1672,10 @@ func (b *bracketer) exact(i int, sites []anchorSite, st *stencil, j int, lat, lo
 	d := math.Inf(1)
 	for q := range sites {
 		m := &sites[q]
-		if l, _ := taylorBracket(m, t, su, cu); l > minHi {
+		// A site whose lower end exceeds a distance already measured is
+		// farther too (sites come by distance at the anchor, so the
+		// nearest are measured first).
+		if l, _ := taylorBracket(m, t, su, cu); l > minHi || l > d {
 			continue
 		}
 		d = math.Min(d, geodesy.Distance(lat, lon, m.slat, m.slon))

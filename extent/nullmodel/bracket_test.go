@@ -83,6 +83,11 @@ func TestBracketContainsDistance(t *testing.T) {
 		// window round their antipode, where it must step aside.
 		{"far-dense", 100, -4, 0.05, 200, 120, 10, 45, 10.5, 45.5, 300, 0.5},
 		{"antipode-dense", -172, -42, 0.05, 100, 60, 10, 45, 10.5, 45.5, 300, 0},
+		// 30 arc-second cells right round the antipodes of a dense
+		// cluster, on their cut loci and up to 130 km away: antipodePrune
+		// and antipodeSites.
+		{"antipode-dense-30s", -170.9, -43.9, 1.0 / 120, 160, 160, 10, 45, 10.5, 45.5, 300, 0},
+		{"antipode-dense-30s-edge", -171.5, -44.5, 1.0 / 120, 120, 90, 10, 45, 10.5, 45.5, 300, 0},
 		{"far-dense-long", -160, -20, 0.05, 200, 120, 10, 45, 12, 45.1, 300, 0.5},
 		{"mid-dense", 75, 12, 0.05, 200, 120, 10, 45, 10.5, 45.5, 300, 0.5},
 		// Dense points round a pole on a whole-world grid, and across the
@@ -424,8 +429,11 @@ func benchBracket(b *testing.B, f *Field, w, h int, layout Binner) {
 func TestHessianBounds(t *testing.T) {
 	const eps = 1e-12
 	// The far form's bounds, to maxFarDist: farCot below cot(f0/b) and
-	// farHessian's A below cot((f0+t)/b)/b and 0, both close to them (the
-	// tolerances below), and B = 1/(f0 - t).
+	// farHessian's A below cot((f0+t)/b)/b and 0, both close to them up
+	// to 19,000 km (the tolerances below; the addition formula loosens A
+	// towards pi b), A falling as f0 and t grow (the projected path's
+	// prunable takes the A of the largest of both as a bound on all), and
+	// B = 1/(f0 - t).
 	for f0 := 1e5; f0 <= maxFarDist; f0 += 1e4 {
 		cot := 1 / math.Tan(sqrtKmax*f0)
 		if c := farCot(f0); c > cot || c < cot-1e-9*math.Abs(cot)-1e-9 {
@@ -440,7 +448,11 @@ func TestHessianBounds(t *testing.T) {
 			// Our tolerance for the series of cot(t/b) (its bound is lower by
 			// about (t/b)^3/360, less after the addition formula).
 			x := step * sqrtKmax
-			if !ok || a > 0 || a > want || a < min(0, want)-(1e-9+x*x*x/100)*(math.Abs(want)+sqrtKmax) || b != 1/(f0-step) {
+			close := f0+step > 19e6 || a >= min(0, want)-(1e-9+x*x*x/100)*(math.Abs(want)+sqrtKmax)
+			a2, _, ok2 := farHessian(farCot(f0+1e4), f0+1e4, step)
+			a3, _, ok3 := farHessian(farCot(f0), f0, step*1.3)
+			falls := (!ok2 || f0+1e4+step > maxFarDist || a2 <= a) && (!ok3 || f0+1.3*step > maxFarDist || a3 <= a)
+			if !ok || a > 0 || a > want || !close || !falls || b != 1/(f0-step) {
 				t.Fatalf("f0 = %v m, t = %v m: farHessian %v %v %v, cot((f0+t)/b)/b %v", f0, step, a, b, ok, want)
 			}
 		}
@@ -479,13 +491,19 @@ func TestHessianBounds(t *testing.T) {
 // across the poles and the antimeridian) and random cells up to 150 km
 // from the anchor, the bracket from the anchor's measurement holds the
 // cell's distance to the site, and within 60 km of the anchor it is under
-// 1.5 km wide (the far form is of use; our bound, from (B - A) t^2/2).
+// 1.5 km wide up to 19,000 km (the far form is of use; our bound, from (B
+// - A) t^2/2). Half the sites are drawn within 1,100 km of the anchor's
+// antipode, so that at least 2,000 pairs lie beyond 19,000 km, where A
+// falls fast.
 func TestFarTaylorBracket(t *testing.T) {
 	r := rand.New(rand.NewPCG(17, 18))
-	tested := 0
+	tested, beyond := 0, 0
 	for tested < 20000 {
 		alat, alon := 180*r.Float64()-90, 360*r.Float64()-180
 		slat, slon := 180*r.Float64()-90, 360*r.Float64()-180
+		if r.IntN(2) == 0 {
+			slat, slon = geodesy.Direct(-alat, alon+180, 360*r.Float64(), 1.1e6*r.Float64())
+		}
 		f0, az, _ := geodesy.Inverse(alat, alon, slat, slon)
 		tmax := 1e3 + r.Float64()*149e3
 		if !(f0 > 2*tmax && f0+tmax >= maxTaylorDist && f0+tmax <= maxFarDist) {
@@ -508,9 +526,14 @@ func TestFarTaylorBracket(t *testing.T) {
 		if !(lo <= d && d <= hi) {
 			t.Fatalf("anchor (%v, %v), site (%v, %v) at %.3f km, cell (%v, %v) %.3f km away: distance %.6f outside [%.6f, %.6f]", alat, alon, slat, slon, f0/1e3, plat, plon, tc/1e3, d, lo, hi)
 		}
-		if tmax <= 60e3 && hi-lo > 1500 {
+		if f0+tmax > 19e6 {
+			beyond++
+		} else if tmax <= 60e3 && hi-lo > 1500 {
 			t.Fatalf("site at %.3f km, cell %.3f km away (t <= %.0f m): bracket %.1f m wide", f0/1e3, tc/1e3, tmax, hi-lo)
 		}
+	}
+	if beyond < 2000 {
+		t.Fatalf("%d of %d pairs beyond 19,000 km", beyond, tested)
 	}
 }
 
@@ -891,6 +914,62 @@ func TestFarPruneHoldsNearest(t *testing.T) {
 	}
 }
 
+// TestAntipodePruneHoldsNearest checks antipodePrune, which keeps of a
+// super-tile's many candidates those that may be nearest to one of its
+// cells from geodesics to each (round the antipodes of a dense cluster,
+// where farPrune's bounds end), as TestFarPruneHoldsNearest checks
+// farPrune: at every cell of windows of 30 arc-second and 2.5 arc-minute
+// cells round the antipodes of a square and an elongated cluster of 300
+// sites, the smallest geodesic to the sites kept is the exact distance of
+// geodesy.Index.Nearest (an independent query over all sites) bit for bit.
+// On the 2.5 arc-minute windows (5 degrees across) it gives a list for at
+// least a quarter of the super-tiles with many candidates (our cut-off);
+// the others, and all of the 30 arc-second window (one degree round the
+// antipodes, on the sites' cut loci), take antipodeSites' list: there
+// antipodePrune must keep its geodesics.
+func TestAntipodePruneHoldsNearest(t *testing.T) {
+	for _, g := range []struct {
+		name           string
+		deg            float64
+		west, north    float64
+		w, h           int
+		sw, ss, se, sn float64
+		minLists       float64
+	}{
+		{"square-2.5m", 1.0 / 24, -174.75, -40.25, 120, 120, 10, 45, 10.5, 45.5, 0.25},
+		{"square-30s", 1.0 / 120, -170.5, -44.5, 120, 120, 10, 45, 10.5, 45.5, 0},
+		{"long-2.5m", 1.0 / 24, -175, -42.5, 150, 60, 10, 45, 12, 45.1, 0.25},
+	} {
+		t.Run(g.name, func(t *testing.T) {
+			lats, lons := clusteredSites(300, g.sw, g.ss, g.se, g.sn, 7)
+			ix, err := geodesy.NewIndex(lats, lons)
+			if err != nil {
+				t.Fatal(err)
+			}
+			f := NewLonLat(ix, g.west, g.deg, g.north, -g.deg)
+			withD := 0
+			tiles, lists, kept, cands := holdsNearest(t, f, ix, g.w, g.h, func(b *bracketer, clat, clon float64, st *stencil, rho float64) []int {
+				b.antiD = nil
+				n := len(b.cands)
+				if !b.antipodePrune(clat, clon, st) {
+					if b.antiD != nil {
+						if len(b.antiD) != n {
+							t.Fatalf("%d geodesics kept for %d candidates", len(b.antiD), n)
+						}
+						withD++
+					}
+					return nil
+				}
+				return slices.Clone(b.cands)
+			})
+			t.Logf("%d super-tiles with more than %d candidates, %d with a list: %d sites kept of %d; %d left to antipodeSites", tiles, maxCandidates, lists, kept, cands, withD)
+			if tiles == 0 || float64(lists) < g.minLists*float64(tiles) || lists+withD != tiles {
+				t.Fatalf("%d super-tiles with many candidates, %d lists, %d left to antipodeSites", tiles, lists, withD)
+			}
+		})
+	}
+}
+
 // TestBracketDenseLattice checks Bracket around a dense lattice of sites,
 // where many super-tiles have more candidates than the anchors measure and
 // their cells are computed exactly from denseSites' lists (the others
@@ -1004,5 +1083,37 @@ func TestSiteFansPerIndex(t *testing.T) {
 	}
 	if again := fs.fan(ixB, 0); &again[0] != &fanB[0] {
 		t.Fatal("the fan of the same Index and site was made again")
+	}
+}
+
+// BenchmarkFieldBracketAntipode measures Bracket on windows of 480 x 480
+// cells centred on the antipode of a dense cluster (300 sites within 0.6
+// degrees round 10 N, 20 E): 30 arc-second and 2.5 arc-minute cells, where
+// every site lies more than 19,000 km away and the cells within about
+// 150 km of the antipodes lie where the comparison bounds end (the sites'
+// cut loci). CPU ns per cell and the share of cells computed exactly.
+func BenchmarkFieldBracketAntipode(b *testing.B) {
+	lats, lons := clusteredSites(300, 19.7, 9.7, 20.3, 10.3, 11)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		b.Fatal(err)
+	}
+	const side = 480
+	for _, tc := range []struct {
+		name string
+		deg  float64
+	}{{"30s", 1.0 / 120}, {"2.5m", 1.0 / 24}} {
+		half := float64(side/2) * tc.deg
+		f := NewLonLat(ix, -160-half, tc.deg, -10+half, -tc.deg)
+		var vals []float64
+		for i := range lats {
+			_, d := ix.Nearest(lats[i], lons[i]+0.3, 0)
+			vals = append(vals, -d)
+		}
+		l, err := metrics.NewLayout(vals, 4096, metrics.WithHistFloor(metrics.FloorExp(2.1e7/4096)))
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.Run(tc.name, func(b *testing.B) { benchBracket(b, f, side, side, newFloorBins(l)) })
 	}
 }

@@ -1154,8 +1154,9 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 // in farPrune: [lo_k, hi_k]. With j the candidate of smallest hi_j, at a
 // cell p (th <= T = tmax) where both sites take a Taylor bracket (near or
 // far form: f > 2 th and f + th <= maxFarDist), k's lower end is at least
-// f_k(a) + tc_k - e1 - |A| th^2/2 - m (A >= farAMin, the far form's most
-// negative bound; the near form's is >= 0) and j's upper end at most
+// f_k(a) + tc_k - e1 - |A| th^2/2 - m (A >= farHessian's A at f0 = r2,
+// the largest upper end below, and t = T: A falls as f0 and t grow; the
+// near form's is >= 0) and j's upper end at most
 // f_j(a) + tc_j + e1 + th^2/(2 (f_j(a) - th)) + m, with m the margin
 // and e1 <= kappa^2 T^3/6 + 1e-6 + epmax (see bracketProjected). tc_k -
 // tc_j = -<w, v_k - v_j>, |w| <= T the offset in the anchor's tangent
@@ -1165,7 +1166,7 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 // the brackets). So k's lower end lies above j's upper end, and above the
 // cell's (the minimum), at every such cell when
 //
-//	lo_k - hi_j > T D/(b smin) + 2 e1 + (|farAMin| + 1/(lo_j - T)) T^2/2 + 2 m + 1 mm:
+//	lo_k - hi_j > T D/(b smin) + 2 e1 + (|A(r2, T)| + 1/(lo_j - T)) T^2/2 + 2 m + 1 mm:
 //
 // k then changes neither end of any bracket (the minima over the sites)
 // and, its distance above the cell's upper end, is never a cell's nearest
@@ -1197,7 +1198,8 @@ func (b *projBracketer) prunable(sites []projSite, alat, alon, tmax, epmax float
 	smin := min(math.Sin(r1*sqrtKmax), math.Sin(r2*sqrtKmax)) * (1 - 1e-12)
 	e1 := chordKappa*chordKappa/6*tmax*tmax*tmax + 1e-6 + epmax
 	m := 1e-3 + 1e-9*maxFarDist
-	slack := 2*e1 + (-farAMin+1/(lo[j]-tmax))*tmax*tmax/2 + 2*m + 1e-3
+	aMin, _, _ := farHessian(farCot(r2), r2, tmax)
+	slack := 2*e1 + (-aMin+1/(lo[j]-tmax))*tmax*tmax/2 + 2*m + 1e-3
 	tg := tmax * sqrtKmax / smin
 	dj := fan[sites[j].k].d
 	skip := sc.skip[:0]
