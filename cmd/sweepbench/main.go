@@ -12,7 +12,8 @@
 // and prints b/a, c/b, the run's peak RSS, cells per second, the CPU
 // seconds (user + system) of a and b and their ratio (steadier than wall
 // times when other jobs share the machine), and how b grows with the number
-// of cells and of extents. `make bench` runs it.
+// of cells and of extents. `make bench` runs it. With -bare it only times
+// the bare read (a) of the rasters it names, for a study of one's own.
 package main
 
 import (
@@ -22,6 +23,8 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+
+	"github.com/airbusgeo/godal"
 )
 
 func main() {
@@ -34,8 +37,24 @@ func main() {
 		reps        = flag.Int("reps", 1, "repetitions of each measurement (the fastest is kept)")
 		iterations  = flag.Int("iterations", 1000, "partial ROC bootstrap iterations of the run")
 		runFlags    = flag.String("run-flags", "", "extra flags for the measured run, space-separated (e.g. --no-distance-null)")
+		bare        = flag.String("bare", "", "only time a bare block read of these comma-separated rasters (a study of your own) and exit")
 	)
 	flag.Parse()
+	if *bare != "" {
+		godal.RegisterAll()
+		best := 0.0
+		for i := range max(1, *reps) {
+			sec, err := bareRead(strings.Split(*bare, ","))
+			if err != nil {
+				fail("%v", err)
+			}
+			if i == 0 || sec < best {
+				best = sec
+			}
+		}
+		fmt.Printf("bare block read on all cores: %.2f s (fastest of %d)\n", best, max(1, *reps))
+		return
+	}
 	cells, err := parseList(*cellsFlag)
 	if err != nil {
 		fail("-cells: %v", err)

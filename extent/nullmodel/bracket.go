@@ -394,6 +394,11 @@ func (f *Field) bracketLonLat(x0, y0, w, h int, need []uint64, bins Binner, lo, 
 	}
 	sc := scratchPool.Get().(*scratch)
 	defer scratchPool.Put(sc)
+	if sc.macros == nil {
+		sc.macros, sc.macroT = map[[2]int][]int{}, map[int]float64{}
+	}
+	clear(sc.macros)
+	clear(sc.macroT)
 	if cap(sc.pending) < n {
 		sc.pending = make([]bool, n)
 	}
@@ -573,21 +578,29 @@ func (b *bracketer) super(sr, scol int) {
 	ok := big.ok
 	rho := big.tmax*1.02 + 1
 	if ok {
-		// An upper bound d1 on the centre's nearest distance, from the
-		// index's chord stage (no geodesic), instead of the distance.
-		// From the sites around the row when they are shown to answer
-		// both queries (the same results), else from the index.
-		b.fillCover(sr, rho)
-		sl, cl := math.Sincos(clon * math.Pi / 180)
-		pt := b.rowPar.Point(clon, sl, cl) // NewPoint(clat, clon)'s bits
-		_, d1, hit := b.cover.Bounds(&pt)
-		if !hit {
-			_, d1, _ = ix.BoundsAt(&pt, 0, -1) // NearestBounds(clat, clon, 0)
-		}
-		if b.cands, hit = b.cover.Within(&pt, d1+2*rho, b.cands[:0]); !hit {
-			b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+		fromMacro := b.macroCands(sr, scol)
+		if !fromMacro {
+			// An upper bound d1 on the centre's nearest distance, from
+			// the index's chord stage (no geodesic), instead of the
+			// distance. From the sites around the row when they are
+			// shown to answer both queries (the same results), else
+			// from the index.
+			b.fillCover(sr, rho)
+			sl, cl := math.Sincos(clon * math.Pi / 180)
+			pt := b.rowPar.Point(clon, sl, cl) // NewPoint(clat, clon)'s bits
+			_, d1, hit := b.cover.Bounds(&pt)
+			if !hit {
+				_, d1, _ = ix.BoundsAt(&pt, 0, -1) // NearestBounds(clat, clon, 0)
+			}
+			if b.cands, hit = b.cover.Within(&pt, d1+2*rho, b.cands[:0]); !hit {
+				b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+			}
 		}
 		switch {
+		case fromMacro && len(b.cands) > 1:
+			// The macro-tile's few sites, pruned again for this
+			// super-tile's smaller radius.
+			b.farPrune(clat, clon, big, rho, false)
 		case len(b.cands) > maxCandidates:
 			// Dense training points: the few candidates that can be
 			// nearest somewhere in the super-tile, taken as a sparse
@@ -681,6 +694,92 @@ func (b *bracketer) super(sr, scol int) {
 			b.patch(sr*superP+pr, scol*superP+pc, clat, clon)
 		}
 	}
+}
+
+// macroP is the side, in super-tiles, of a macro-tile: our choice. Far
+// from a dense cluster every super-tile sees the whole cluster as its
+// candidates and farPrune keeps one or two of them; a macro-tile does
+// that once for macroP^2 super-tiles (macroCands).
+const macroP = 3
+
+// macroCands sets b.cands, for super-tile (sr, scol), to the candidates
+// its macro-tile (the macroP x macroP super-tiles of the global lattice
+// that hold it) kept, and reports true; false (b.cands untouched) when
+// the macro-tile has no such list. A macro-tile gets one when the index
+// lists more than maxCandidates sites within d1 + 2 rho_M of its centre
+// cell c_M (d1 an upper bound on c_M's nearest distance, rho_M = 1.02
+// T_M + 1 m) and farPrune, with T_M in its role of the longest geodesic
+// from c_M to a cell, keeps at most maxCandidates of them: every cell's
+// nearest site, by the triangle inequality and farPrune's bound, as for
+// a super-tile. T_M = max_i s(c_M, c_i) + T_i over the centres c_i of its
+// super-tiles (T_i their stencils' tmax) bounds the geodesic from c_M to
+// each cell by the triangle inequality. farPrune is not tried where it
+// must fail, which a chord shows without a geodesic: it needs the
+// distance from c_M to the candidate s0 of shortest chord, at most d1 +
+// 2 rho_M, above twice the geodesic from s0 to every other, at least
+// their chord (points spread round the macro-tile, not a cluster far
+// away). The lists depend only on the lattice, so every cut into blocks
+// gives the same; each Bracket call keeps those of its block
+// (scratch.macros).
+func (b *bracketer) macroCands(sr, scol int) bool {
+	key := [2]int{floorDiv(sr, macroP), floorDiv(scol, macroP)}
+	m, seen := b.sc.macros[key]
+	if !seen {
+		m = b.macro(key[0], key[1])
+		b.sc.macros[key] = m
+	}
+	if m == nil {
+		return false
+	}
+	b.cands = append(b.cands[:0], m...)
+	return true
+}
+
+// macro returns the list of macro-tile (mr, mc) described at macroCands,
+// or nil.
+func (b *bracketer) macro(mr, mc int) []int {
+	ll, ix := b.ll, b.f.ix
+	const side = macroP * SuperTile
+	cr, cc := mr*side+side/2, mc*side+side/2
+	clat, clon := ll.lat(cr), ll.lon(cc)
+	tm, ok := b.sc.macroT[mr]
+	if !ok {
+		// The same along a row of macro-tiles; the super-tiles' centres
+		// left and right of c_M lie at the same distance.
+		for i := range macroP {
+			st := ll.stencil(SuperTile/2, mr*macroP+i)
+			if !st.ok {
+				tm = math.NaN()
+				break
+			}
+			r := mr*side + i*SuperTile + SuperTile/2
+			for j := range macroP/2 + 1 {
+				c := cc + (j-macroP/2)*SuperTile
+				tm = max(tm, geodesy.Distance(clat, clon, ll.lat(r), ll.lon(c))+st.tmax)
+			}
+		}
+		b.sc.macroT[mr] = tm
+	}
+	if tm != tm {
+		return nil
+	}
+	rho := tm*1.02 + 1
+	_, d1 := ix.NearestBounds(clat, clon, 0)
+	b.cands = ix.Within(clat, clon, d1+2*rho, b.cands[:0])
+	if len(b.cands) <= maxCandidates {
+		return nil
+	}
+	first, _ := b.chordNearest(geodesy.ECEF(clat, clon))
+	p0 := b.ll.sites[b.cands[first]]
+	for _, k := range b.cands {
+		if 2*dist3(p0, b.ll.sites[k]) >= d1+2*rho {
+			return nil
+		}
+	}
+	if !b.farPrune(clat, clon, &stencil{ok: true, tmax: rho}, rho, false) {
+		return nil
+	}
+	return slices.Clone(b.cands)
 }
 
 // coverLimit is the most sites a row's cover may hold: our choice; a

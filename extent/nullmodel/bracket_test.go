@@ -914,6 +914,82 @@ func TestFarPruneHoldsNearest(t *testing.T) {
 	}
 }
 
+// TestMacroHoldsNearest checks the macro-tiles' lists (macroCands): on
+// windows of 0.05-degree cells about 1,900, 10,000 and 17,000 km from a
+// cluster of 300 sites (where every super-tile has them all as
+// candidates) and on the dense lattice of TestDenseSitesHoldNearest, at
+// every cell of every macro-tile that has a list, the smallest geodesic to
+// its sites is the exact distance of geodesy.Index.Nearest bit for bit;
+// on the far windows at least half of the macro-tiles have one (our
+// cut-off: the path is at work).
+func TestMacroHoldsNearest(t *testing.T) {
+	type window struct {
+		name    string
+		f       *Field
+		ix      *geodesy.Index
+		w, h    int
+		minList float64
+	}
+	lattice, lix := denseGrid(t, 400, 270, 0.04)
+	cases := []window{{"lattice", lattice, lix, 270, 270, 0}}
+	for _, g := range []struct {
+		name           string
+		west, north    float64
+		sw, ss, se, sn float64
+	}{
+		{"1900km", 28, 40, 10, 45, 10.5, 45.5},
+		{"10000km", 100, -4, 10, 45, 10.5, 45.5},
+		{"17000km-long", -160, -20, 10, 45, 12, 45.1},
+	} {
+		lats, lons := clusteredSites(300, g.sw, g.ss, g.se, g.sn, 7)
+		ix, err := geodesy.NewIndex(lats, lons)
+		if err != nil {
+			t.Fatal(err)
+		}
+		cases = append(cases, window{g.name, NewLonLat(ix, g.west, 0.05, g.north, -0.05), ix, 135, 135, 0.5})
+	}
+	const side = macroP * SuperTile
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			b := bracketer{f: tc.f, ll: tc.f.ll, sc: &scratch{macroT: map[int]float64{}}}
+			ll := tc.f.ll
+			tiles, lists, kept := 0, 0, 0
+			for mr := 0; mr < tc.h/side; mr++ {
+				for mc := 0; mc < tc.w/side; mc++ {
+					tiles++
+					ks := b.macro(mr, mc)
+					if ks == nil {
+						continue
+					}
+					lists++
+					kept += len(ks)
+					if len(ks) > maxCandidates {
+						t.Fatalf("macro-tile (%d, %d): %d sites", mr, mc, len(ks))
+					}
+					for r := mr * side; r < (mr+1)*side; r++ {
+						for c := mc * side; c < (mc+1)*side; c++ {
+							lat, lon := ll.lat(r), ll.lon(c)
+							_, want := tc.ix.Nearest(lat, lon, 0)
+							got := math.Inf(1)
+							for _, k := range ks {
+								slat, slon := tc.ix.Site(k)
+								got = math.Min(got, geodesy.Distance(lat, lon, slat, slon))
+							}
+							if math.Float64bits(got) != math.Float64bits(want) {
+								t.Fatalf("cell (%d, %d): %v over the %d sites of macro-tile (%d, %d), Nearest %v", c, r, got, len(ks), mr, mc, want)
+							}
+						}
+					}
+				}
+			}
+			t.Logf("%d macro-tiles, %d with a list, %d sites kept", tiles, lists, kept)
+			if float64(lists) < tc.minList*float64(tiles) {
+				t.Fatalf("%d of %d macro-tiles with a list", lists, tiles)
+			}
+		})
+	}
+}
+
 // TestAntipodePruneHoldsNearest checks antipodePrune, which keeps of a
 // super-tile's many candidates those that may be nearest to one of its
 // cells from geodesics to each (round the antipodes of a dense cluster,

@@ -87,6 +87,10 @@ type scratch struct {
 	// farPrune's geodesics between sites, and each candidate's bracket.
 	fans         siteFans
 	farLo, farHi []float64
+	// Bracket's macro-tile lists of one call, by macro-tile (macroCands;
+	// nil: none).
+	macros map[[2]int][]int
+	macroT map[int]float64 // by row of macro-tiles: T_M (NaN: none)
 }
 
 var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
