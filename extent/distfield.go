@@ -178,6 +178,15 @@ func (fw *fieldWorker) band(r0 int, rowDone func(row int, near []rowRuns)) {
 	for k := range r1 - r0 {
 		fw.runs[k].start(len(fl.cuts))
 	}
+	if g.Geographic && !fw.pts.reach.anyRow(g, r0, r1) {
+		// Every cell of the band lies beyond maxD (the reach box's
+		// promise): in no cut's runs. Most of a global grid, for a
+		// species of one region.
+		for k := range r1 - r0 {
+			rowDone(r0+k, fw.runs[k].finish(g.Width))
+		}
+		return
+	}
 	for a := 0; a < g.Width; a += fw.cols {
 		e := min(a+fw.cols, g.Width)
 		fw.window(r0, r1, a, e)
@@ -811,6 +820,17 @@ func newReach(lats, lons []float64, maxD float64) reachBox {
 	rb.lonC = start + span/2
 	rb.lonH = span/2 + dlon
 	return rb
+}
+
+// anyRow reports whether a row of [r0, r1) of a latitude-longitude grid
+// g has its latitude in the box (bandPoints.prepareRow's test).
+func (r reachBox) anyRow(g *Grid, r0, r1 int) bool {
+	for row := r0; row < r1; row++ {
+		if _, lat := g.Centre(0, row); lat >= r.south && lat <= r.north {
+			return true
+		}
+	}
+	return false
 }
 
 func (r reachBox) has(lon, lat float64) bool {

@@ -52,10 +52,16 @@ func TestDistanceFieldExact(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// Pole to pole in 0.05-degree cells, over the sites' longitudes: most
+	// bands lie beyond every cut (band's reach test).
+	world, err := NewGrid(240, 3600, [6]float64{3, 0.05, 0, 90, 0, -0.05}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
 	for _, gc := range []struct {
 		name string
 		g    *Grid
-	}{{"lonlat", lonlat}, {"laea", laea}} {
+	}{{"lonlat", lonlat}, {"laea", laea}, {"world", world}} {
 		for _, sc := range []struct {
 			name       string
 			lats, lons []float64
