@@ -37,6 +37,7 @@ func main() {
 		reps        = flag.Int("reps", 1, "repetitions of each measurement (the fastest is kept)")
 		iterations  = flag.Int("iterations", 1000, "partial ROC bootstrap iterations of the run")
 		runFlags    = flag.String("run-flags", "", "extra flags for the measured run, space-separated (e.g. --no-distance-null)")
+		global      = flag.Bool("global", false, "synthetic grids of the whole world (2:1; 933e6 cells is 30 arc-seconds) instead of a 60 x 40 degree window")
 		bare        = flag.String("bare", "", "only time a bare block read of these comma-separated rasters (a study of your own) and exit")
 	)
 	flag.Parse()
@@ -66,7 +67,7 @@ func main() {
 	if _, err := os.Stat(*bin); err != nil {
 		fail("%s not found: build it first (make build)", *bin)
 	}
-	b := &bench{bin: *bin, reps: max(1, *reps), iterations: *iterations, baselineMax: *baseMax, runFlags: strings.Fields(*runFlags)}
+	b := &bench{bin: *bin, reps: max(1, *reps), iterations: *iterations, baselineMax: *baseMax, runFlags: strings.Fields(*runFlags), global: *global}
 	if err := b.runAll(*dir, cells, extents); err != nil {
 		fail("%v", err)
 	}

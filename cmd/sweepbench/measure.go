@@ -29,6 +29,7 @@ type bench struct {
 	// runFlags are added to every measured `areasweep run`
 	// (e.g. --no-distance-null).
 	runFlags []string
+	global   bool // whole-world grids (generate)
 }
 
 // row is one measured size: times in seconds, RSS in MiB. bareCPU and
@@ -50,7 +51,10 @@ func (b *bench) runAll(dir string, cells, extents []float64) error {
 	fmt.Printf("%-12s %-8s %-9s %-9s %-7s %-11s %-7s %-10s %-12s %-9s %-9s %-9s\n", "cells", "extents", "a bare s", "b run s", "b/a", "c baseline s", "c/b", "b RSS MiB", "b cells/s", "a CPU s", "b CPU s", "b/a CPU")
 	for _, c := range cells {
 		sdir := filepath.Join(dir, fmt.Sprintf("cells%.0f", c))
-		s, err := generate(sdir, c, 2, 20261202)
+		if b.global {
+			sdir += "-global"
+		}
+		s, err := generate(sdir, c, 2, 20261202, b.global)
 		if err != nil {
 			return fmt.Errorf("generate %.0f cells: %w", c, err)
 		}

@@ -51,12 +51,19 @@ func suitability(k int, lon, lat float64) float32 {
 }
 
 // generate writes the study for about cells cells into dir (reused when
-// already there with the same size).
-func generate(dir string, cells float64, models int, seed uint64) (*synthetic, error) {
-	aspect := (winEast - winWest) / (winNorth - winSouth)
+// already there with the same size). With global the grid covers the
+// whole world (cells 2:1, about 30 arc-seconds at 933 million cells), the
+// surfaces going on beyond the window (valid everywhere but the no-data
+// disc); the records and the region stay in the window.
+func generate(dir string, cells float64, models int, seed uint64, global bool) (*synthetic, error) {
+	west, east, south, north := winWest, winEast, winSouth, winNorth
+	if global {
+		west, east, south, north = -180, 180, -90, 90
+	}
+	aspect := (east - west) / (north - south)
 	h := int(math.Round(math.Sqrt(cells / aspect)))
 	w := int(math.Round(float64(h) * aspect))
-	s := &synthetic{dir: dir, width: w, height: h, west: winWest, north: winNorth, step: (winEast - winWest) / float64(w)}
+	s := &synthetic{dir: dir, width: w, height: h, west: west, north: north, step: (east - west) / float64(w)}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
 	}
