@@ -14,18 +14,23 @@ import (
 	"areasweep/extent/benchfamily"
 )
 
-// BenchmarkBuild measures building a family of 10 members (base, four
-// region buffers, three point buffers around 500 points, hull, whole
-// raster) on latitude-longitude grids of 1 and 12 million cells.
-func BenchmarkBuild(b *testing.B) {
-	dir := b.TempDir()
-	t := &testing.T{}
-	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{4, 40}, {14, 40}, {14, 48}, {9, 45}, {4, 48}, {4, 40}}})
+// benchRegion writes BenchmarkBuild's region into a temporary folder and
+// returns it with its 500 training points.
+func benchRegion(b *testing.B) (string, []LonLat) {
+	region := writeGeoJSON(&testing.T{}, b.TempDir(), "r.geojson", []string{"r"}, [][][2]float64{{{4, 40}, {14, 40}, {14, 48}, {9, 45}, {4, 48}, {4, 40}}})
 	r := rand.New(rand.NewPCG(1, 2))
 	var pts []LonLat
 	for i := 0; i < 500; i++ {
 		pts = append(pts, LonLat{Lon: 5 + 8*r.Float64(), Lat: 41 + 6*r.Float64()})
 	}
+	return region, pts
+}
+
+// BenchmarkBuild measures building a family of 10 members (base, four
+// region buffers, three point buffers around 500 points, hull, whole
+// raster) on latitude-longitude grids of 1 and 12 million cells.
+func BenchmarkBuild(b *testing.B) {
+	region, pts := benchRegion(b)
 	for _, size := range []struct{ w, h int }{{1000, 1000}, {4000, 3000}} {
 		step := 20.0 / float64(size.w)
 		g, err := NewGrid(size.w, size.h, [6]float64{0, step, 0, 52, 0, -step}, "EPSG:4326")
@@ -54,14 +59,7 @@ func BenchmarkBuild(b *testing.B) {
 // longitudes increase along them; before both, on a global 30
 // arc-second grid, the family took 5.9 s against 1.0 s after).
 func BenchmarkBuildGlobal(b *testing.B) {
-	dir := b.TempDir()
-	t := &testing.T{}
-	region := writeGeoJSON(t, dir, "r.geojson", []string{"r"}, [][][2]float64{{{4, 40}, {14, 40}, {14, 48}, {9, 45}, {4, 48}, {4, 40}}})
-	r := rand.New(rand.NewPCG(1, 2))
-	var pts []LonLat
-	for i := 0; i < 500; i++ {
-		pts = append(pts, LonLat{Lon: 5 + 8*r.Float64(), Lat: 41 + 6*r.Float64()})
-	}
+	region, pts := benchRegion(b)
 	g, err := NewGrid(7200, 3600, [6]float64{-180, 0.05, 0, 90, 0, -0.05}, "EPSG:4326")
 	if err != nil {
 		b.Fatal(err)
