@@ -506,6 +506,7 @@ type anchorSite struct {
 	sz, cz     float64
 	taylor     bool
 	far        bool    // the far form of the Taylor bracket (see farHessian)
+	farQ       bool    // far: narrow it by the range of f' (see measure)
 	hA, hB     float64 // far: bounds on f'' within the anchor's stencil
 	slat, slon float64
 }
@@ -1161,6 +1162,12 @@ func chordBracket(d float64) (lo, hi float64) {
 	return lo, d*(1+u*(1.0/6+u*0.1)) + margin
 }
 
+// farQShare is our choice of the share of a floor bin below which the
+// far form's second-order term is left unnarrowed (anchorSite.farQ): a
+// bracket the narrowing would have kept inside a bin then crosses an edge
+// for about that share of cells more, each then measured.
+const farQShare = 1.0 / 64
+
 // measure returns site k measured exactly at anchor (alat, alon), with the
 // Hessian bounds for the anchor's stencil st.
 func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
@@ -1174,6 +1181,11 @@ func (b *bracketer) measure(k int, alat, alon float64, st *stencil) anchorSite {
 			m.taylor = true
 		case f0+st.tmax <= maxFarDist:
 			m.hA, m.hB, m.far = farHessian(farCot(f0), f0, st.tmax)
+			// The range of f' narrows the second-order term, at most
+			// (B - A) tmax^2/2 wide; where that is below farQShare of a
+			// floor bin it cannot much change which bins a bracket meets,
+			// and the far form skips it (a third of its cost).
+			m.farQ = (m.hB-m.hA)*st.tmax*st.tmax/2 > farQShare*b.binW
 		}
 	}
 	return m
@@ -1892,10 +1904,13 @@ func taylorBracket(m *anchorSite, t, su, cu float64) (lo, hi float64) {
 	}
 	if m.far {
 		// Both bounds times the largest 1 - f'^2 over the range of f',
-		// [c0 + t A q, c0 + t B q]: q first 1, then twice from the last.
+		// [c0 + t A q, c0 + t B q]: q first 1, then twice from the last
+		// (when it can matter: farQ).
 		q := 1.0
-		for range 2 {
-			q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+		if m.farQ {
+			for range 2 {
+				q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+			}
 		}
 		base, half := m.f0+t*c0, t*t/2
 		if l := base + m.hA*q*half - margin; l > lo {
@@ -1971,8 +1986,10 @@ func taylorRow(m *anchorSite, ts, sa, ca, lo, hi []float64) {
 		}
 		if m.far {
 			q := 1.0
-			for range 2 {
-				q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+			if m.farQ {
+				for range 2 {
+					q = 1 - minSq(max(-1, c0+t*m.hA*q), min1(c0+t*m.hB*q))
+				}
 			}
 			base, half := f0+t*c0, t*t/2
 			if v := base + m.hA*q*half - margin; v > l {
