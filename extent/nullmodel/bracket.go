@@ -1496,17 +1496,18 @@ func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOn
 // angle the two sites make at a point derived at farPrune, which holds
 // while every point of the geodesic from j to k is within pi b of that
 // point (Klingenberg's lemma, see maxFarDist), ensured here by r2 + D_jk
-// below pi b. Near the antipodes the distances to all the sites are
-// nearly parallel functions (sin(r/b) is small, but so is D/b against
-// the differences of d_k across a cluster), so a few sites remain.
+// below pi b; a site for which the bound does not apply (r1 <= 0 or r2 +
+// D_jk >= pi b: on or near a site's cut locus, within about 150 km of
+// the antipodes) is kept. Away from the cut loci the distances to all the
+// sites are nearly parallel functions (sin(r/b) is small, but so is D/b
+// against the differences of d_k across a cluster), so a few remain.
 //
 // It is tried only when the candidate of shortest chord lies beyond
-// maxTaylorDist from c (one geodesic), and reports false, leaving b.cands
-// as they were, when a bound does not apply (r1 <= 0 or r2 + D_jk >= pi
-// b: within about T of a site's cut locus, a few tens of kilometres from
-// its antipode) or when more than maxCandidates remain. It costs a
-// geodesic per candidate and super-tile, and one per pair of j and
-// candidate (kept across super-tiles, siteFans).
+// maxTaylorDist from c (one geodesic; else it reports false at once). It
+// reports false, leaving b.cands as they were, when more than
+// maxCandidates remain, and then keeps the geodesics in b.antiD for
+// antipodeSites. It costs a geodesic per candidate and super-tile, and
+// one per pair of j and candidate (kept across super-tiles, siteFans).
 func (b *bracketer) antipodePrune(clat, clon float64, st *stencil) bool {
 	if !st.ok {
 		return false
