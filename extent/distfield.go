@@ -174,7 +174,6 @@ func (fw *fieldWorker) band(r0 int, rowDone func(row int, near []rowRuns)) {
 	fw.rhos.n = 0
 	fl.band = r0
 	r1 := min(r0+tileSide, g.Height)
-	fw.steps.measure(g, r0, r1-r0)
 	for k := range r1 - r0 {
 		fw.runs[k].start(len(fl.cuts))
 	}
@@ -187,6 +186,7 @@ func (fw *fieldWorker) band(r0 int, rowDone func(row int, near []rowRuns)) {
 		}
 		return
 	}
+	fw.steps.measure(g, r0, r1-r0)
 	for a := 0; a < g.Width; a += fw.cols {
 		e := min(a+fw.cols, g.Width)
 		fw.window(r0, r1, a, e)
@@ -823,15 +823,18 @@ func newReach(lats, lons []float64, maxD float64) reachBox {
 }
 
 // anyRow reports whether a row of [r0, r1) of a latitude-longitude grid
-// g has its latitude in the box (bandPoints.prepareRow's test).
+// g has its latitude in the box.
 func (r reachBox) anyRow(g *Grid, r0, r1 int) bool {
 	for row := r0; row < r1; row++ {
-		if _, lat := g.Centre(0, row); lat >= r.south && lat <= r.north {
+		if _, lat := g.Centre(0, row); r.hasLat(lat) {
 			return true
 		}
 	}
 	return false
 }
+
+// hasLat reports whether latitude lat is in the box's range.
+func (r reachBox) hasLat(lat float64) bool { return lat >= r.south && lat <= r.north }
 
 func (r reachBox) has(lon, lat float64) bool {
 	if lat < r.south || lat > r.north {
@@ -984,7 +987,7 @@ func (p *bandPoints) prepareRow(g *Grid, r, k int) {
 	_, lat := g.Centre(0, r)
 	p.rowLat[k] = lat
 	p.rows[k] = geodesy.NewParallel(lat)
-	p.rowIn[k] = lat >= p.reach.south && lat <= p.reach.north
+	p.rowIn[k] = p.reach.hasLat(lat)
 }
 
 // make transforms the cells of band row k in columns [c0, c1) that have
