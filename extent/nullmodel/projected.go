@@ -35,7 +35,7 @@ type projScratch struct {
 	ex, ey, ez []float64 // ECEF of the needed cells with a position (ex NaN: not bracketed)
 	err        []float64 // bound on the distance of (ex, ey, ez) from the true centre (0: exact)
 	cands      []int
-	sites      []projSite // the tile's candidates by chord from its centre
+	sites      []projSite // the candidates with their chords from a tile's centre or an anchor
 	near       []projSite // those that can give a cell its shortest chord
 	order      []projOrder
 	clo, chi   []float64 // the chord bracket of the cells left to the anchors
@@ -52,8 +52,8 @@ type projScratch struct {
 	later      []projLater // cells to compute at their exact centres
 	fans       siteFans    // prunable's geodesics between sites
 	skip       []bool      // prunable's verdicts, in the order of its sites
-	// prunable's candidates (by chord) and the brackets of their distances
-	// from the anchor
+	// prunable's candidates (in the order of its sites) and the brackets
+	// of their distances from the anchor
 	siteKs           []int
 	pruneLo, pruneHi []float64
 }
@@ -1170,8 +1170,9 @@ func (b *projBracketer) anchorSites(r0, r1, c0, c1 int, alat, alon float64, pa [
 // prunable reports, for an anchor (alat, alon) with many candidate sites
 // (dense training points; nil with at most maxCandidates), which of them,
 // by their order in sites (any order; first is the position of the first
-// site of shortest chord, s0 below), cannot change either end of any pending cell's bracket nor be its nearest
-// site, so that anchorSites need not measure them: the brackets and exact
+// site of shortest chord, s0 below), cannot change either end of any
+// pending cell's bracket nor be its nearest site, so that anchorSites
+// need not measure them: the brackets and exact
 // distances are then the same, bit for bit, as with every site measured.
 // tmax bounds the cells' th (their geodesic from the anchor) and their
 // chord, epmax the error of their interpolated positions.
