@@ -270,3 +270,50 @@ func TestMustExistLineBreak(t *testing.T) {
 		}
 	}
 }
+
+// TestMustExistLayerFolder: a folder given for a polygon layer or the
+// occurrences (a Shapefile's folder, as a file manager shows it) is
+// refused with the files in it that could be meant; before, the message
+// said only "is a directory, not a file".
+func TestMustExistLayerFolder(t *testing.T) {
+	root := t.TempDir()
+	mk := func(dir string, files ...string) string {
+		d := filepath.Join(root, dir)
+		if err := os.Mkdir(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range files {
+			if err := os.WriteFile(filepath.Join(d, f), nil, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		return d
+	}
+	shp := mk("region_shp", "region.dbf", "region.prj", "region.shp", "region.shx")
+	many := mk("layers", "a.gpkg", "b.geojson", "c.shp", "d.fgb", "e.csv")
+	none := mk("empty")
+	occ := mk("occ", "points.csv", "region.shp")
+	for _, tc := range []struct {
+		what, dir string
+		want      []string
+		not       string
+	}{
+		{"region", shp, []string{"region: " + shp + " is a directory, not a file", "give the file of the polygon layer itself, e.g. " + filepath.Join(shp, "region.shp")}, ".dbf"},
+		{"extra extent x", many, []string{"one of the 4 in it: " + filepath.Join(many, "a.gpkg") + ", " + filepath.Join(many, "b.geojson") + ", " + filepath.Join(many, "c.shp") + ", ..."}, "e.csv"},
+		{"ecoregions", none, []string{"ecoregions: " + none + " is a directory, not a file; give the file of the polygon layer itself"}, "e.g."},
+		{"occurrences", occ, []string{"give the occurrence table's file itself, e.g. " + filepath.Join(occ, "points.csv")}, "region.shp"},
+	} {
+		err := mustExist(tc.what, tc.dir)
+		if err == nil || !fault.IsBadInput(err) {
+			t.Fatalf("%s: mustExist = %v, want a bad input", tc.what, err)
+		}
+		for _, w := range tc.want {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s: %q lacks %q", tc.what, err, w)
+			}
+		}
+		if strings.Contains(err.Error(), tc.not) {
+			t.Errorf("%s: %q names %q", tc.what, err, tc.not)
+		}
+	}
+}

@@ -431,6 +431,43 @@ func tildeFlag(what string) string {
 	return "--" + name
 }
 
+// layerExts are the file extensions folderFiles names in a folder given
+// for a polygon layer (the formats the README lists and the common ones
+// OGR reads from one file), and tableExts those it names for the
+// occurrence table.
+var (
+	layerExts = []string{".shp", ".gpkg", ".geojson", ".json", ".fgb", ".kml", ".gml", ".sqlite"}
+	tableExts = []string{".csv", ".txt", ".tsv"}
+)
+
+// folderFiles returns the end of the message refusing a folder given for
+// the occurrences or a polygon layer: the files in it that could be meant
+// (a Shapefile's folder holds the .shp to give), at most three and in
+// name order, with what to do; or what to give when there is none.
+func folderFiles(what, dir string) string {
+	exts, kind := layerExts, "the file of the polygon layer"
+	if what == "occurrences" {
+		exts, kind = tableExts, "the occurrence table's file"
+	}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return "; give " + kind + " itself"
+	}
+	var found []string
+	for _, e := range entries {
+		if e.Type().IsRegular() && slices.Contains(exts, strings.ToLower(filepath.Ext(e.Name()))) {
+			found = append(found, shellArg(filepath.Join(dir, e.Name())))
+		}
+	}
+	switch {
+	case len(found) == 0:
+		return "; give " + kind + " itself"
+	case len(found) > 3:
+		return fmt.Sprintf("; give %s itself, e.g. one of the %d in it: %s, ...", kind, len(found), strings.Join(found[:3], ", "))
+	}
+	return fmt.Sprintf("; give %s itself, e.g. %s", kind, strings.Join(found, " or "))
+}
+
 func mustExist(what, path string) error {
 	if strings.ContainsAny(path, "\n\r") {
 		// Every message naming the file, and run.log, would break
@@ -472,7 +509,7 @@ func mustExist(what, path string) error {
 			"if it is a raster stored as a folder (a Zarr store, an ArcInfo binary grid), copy it into one file (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
 	}
 	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
-		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file", what, path))
+		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file%s", what, path, folderFiles(what, path)))
 	}
 	if !st.IsDir() && !st.Mode().IsRegular() && what != "occurrences" {
 		// GDAL would wait forever for a named pipe's writer, and reads a
