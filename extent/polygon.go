@@ -83,6 +83,31 @@ func vectorAdvice(cause string) string {
 	return "; check that the file opens in a GIS, or export it again as a GeoPackage"
 }
 
+// LayerFields returns the names of the attribute fields of the polygon
+// layer areasweep reads from path (see chooseLayer), sorted, as its first
+// feature has them (godal reads fields per feature), for a message
+// asking which of them holds the unit ids; nil when the file cannot be
+// read as such a layer (that is refused later, with its own message).
+func LayerFields(path string) []string {
+	s, _, err := openPolygons(path, "")
+	if err != nil {
+		return nil
+	}
+	defer s.close()
+	s.layer.ResetReading()
+	f := s.layer.NextFeature()
+	if f == nil {
+		return nil
+	}
+	defer f.Close()
+	var names []string
+	for k := range f.Fields() {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return names
+}
+
 // ReadUnits reads the polygon features of the first layer of path grouped
 // by the value of field, each group unioned, in the order ids first appear.
 func ReadUnits(path, field string, g *Grid) ([]Unit, []string, error) {

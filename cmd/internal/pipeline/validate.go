@@ -118,7 +118,10 @@ func (o *Options) validateInputs() error {
 		return fmt.Errorf("no base region given: add --region FILE (GeoPackage, Shapefile or GeoJSON)")
 	}
 	if o.Ecoregions != "" && o.EcoregionField == "" {
-		return fmt.Errorf("--ecoregions needs --ecoregion-field NAME")
+		if fields := extent.LayerFields(o.Ecoregions); len(fields) > 0 {
+			return fmt.Errorf("--ecoregions %s needs --ecoregion-field NAME, the field holding each unit's id; its fields are: %s", o.Ecoregions, strings.Join(fields, ", "))
+		}
+		return fmt.Errorf("--ecoregions %s needs --ecoregion-field NAME, the field holding each unit's id", o.Ecoregions)
 	}
 	return crsTrailingText(o.OccurrencesCRS)
 }
