@@ -685,15 +685,7 @@ func (g *Grid) MinCellSideM() float64 {
 // be lons and lats.
 func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
 	if g.edges != nil && !g.Geographic {
-		// The points as given, for the round trip: xs and ys may be lons
-		// and lats.
-		sc := offMapPool.Get().(*offMapScratch)
-		sc.ox, sc.oy = append(sc.ox[:0], xs...), append(sc.oy[:0], ys...)
-		copy(lons, xs)
-		copy(lats, ys)
-		g.transform(g.toLL, lons, lats)
-		g.dropOffMap(sc.ox, sc.oy, lons, lats, g.edges, sc)
-		offMapPool.Put(sc)
+		g.toLonLatOnMap(xs, ys, lons, lats, g.edges)
 		return
 	}
 	copy(lons, xs)
@@ -702,6 +694,21 @@ func (g *Grid) ToLonLat(xs, ys, lons, lats []float64) {
 		return
 	}
 	g.transform(g.toLL, lons, lats)
+}
+
+// toLonLatOnMap is ToLonLat on a grid crossed by a world map's outline:
+// PROJ's inverse, then dropOffMap's round trip of the points that may lie
+// off the map (every point when edges is nil, as mapEdges.setInner has
+// it before the grid's edges are set). xs and ys may be lons and lats.
+func (g *Grid) toLonLatOnMap(xs, ys, lons, lats []float64, edges *mapEdges) {
+	// The points as given, for the round trip.
+	sc := offMapPool.Get().(*offMapScratch)
+	sc.ox, sc.oy = append(sc.ox[:0], xs...), append(sc.oy[:0], ys...)
+	copy(lons, xs)
+	copy(lats, ys)
+	g.transform(g.toLL, lons, lats)
+	g.dropOffMap(sc.ox, sc.oy, lons, lats, edges, sc)
+	offMapPool.Put(sc)
 }
 
 // offMapPool holds ToLonLat's and dropOffMap's scratch on grids with a

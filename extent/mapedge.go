@@ -113,10 +113,7 @@ func (e *mapEdges) setInner(g *Grid) {
 		}
 	}
 	lons, lats := make([]float64, len(xs)), make([]float64, len(ys))
-	copy(lons, xs)
-	copy(lats, ys)
-	g.transform(g.toLL, lons, lats)
-	g.dropOffMap(xs, ys, lons, lats, nil, new(offMapScratch))
+	g.toLonLatOnMap(xs, ys, lons, lats, nil)
 	kept, off := e.inner[:0], make([]int32, len(e.innerOff))
 	k = 0
 	for r := 0; r+1 < len(e.innerOff); r++ {
