@@ -601,20 +601,20 @@ func (b *bracketer) super(sr, scol int) {
 		case fromMacro && len(b.cands) > 1:
 			// The macro-tile's few sites, pruned again for this
 			// super-tile's smaller radius.
-			b.farPrune(clat, clon, big, rho, false)
+			b.farPrune(clat, clon, big, false)
 		case len(b.cands) > maxCandidates:
 			// Dense training points: the few candidates that can be
 			// nearest somewhere in the super-tile, taken as a sparse
 			// one's; round their antipodes, where farPrune's bounds end,
 			// from a geodesic to each.
 			b.antiD = nil
-			if !b.farPrune(clat, clon, big, rho, false) {
+			if !b.farPrune(clat, clon, big, false) {
 				b.antipodePrune(clat, clon, big)
 			}
 		case len(b.cands) >= farPruneMin:
 			// Thousands of kilometres from a few points close together,
 			// the same spares the anchors a geodesic to each.
-			b.farPrune(clat, clon, big, rho, true)
+			b.farPrune(clat, clon, big, true)
 		}
 		ok = len(b.cands) > 0 && len(b.cands) <= maxCandidates
 		if len(b.cands) > maxCandidates {
@@ -777,7 +777,7 @@ func (b *bracketer) macro(mr, mc int) []int {
 			return nil
 		}
 	}
-	if !b.farPrune(clat, clon, &stencil{ok: true, tmax: rho}, rho, false) {
+	if !b.farPruneFrom(clat, clon, first, &stencil{ok: true, tmax: rho}, false) {
 		return nil
 	}
 	return slices.Clone(b.cands)
@@ -1442,13 +1442,15 @@ const farPruneMin = 4
 //	sin^2(theta/2) <= sin((D+dr)/2b) sin((D-dr)/2b) / (sin(r_j/b) sin(r_k/b)) <= sin^2(D/2b) / (sin(r_j/b) sin(r_k/b)),
 //
 // dr = r_j - r_k (|dr| <= D), the last step as sin x sin y <= sin^2((x+y)/2).
-func (b *bracketer) farPrune(clat, clon float64, st *stencil, rho float64, farOnly bool) bool {
-	if !st.ok {
-		return false
-	}
-	pc := geodesy.ECEF(clat, clon)
-	first, _ := b.chordNearest(pc)
-	if first < 0 {
+func (b *bracketer) farPrune(clat, clon float64, st *stencil, farOnly bool) bool {
+	first, _ := b.chordNearest(geodesy.ECEF(clat, clon))
+	return b.farPruneFrom(clat, clon, first, st, farOnly)
+}
+
+// farPruneFrom is farPrune with s0 = b.cands[first] found by the caller
+// (chordNearest; first < 0, no candidate, reports false).
+func (b *bracketer) farPruneFrom(clat, clon float64, first int, st *stencil, farOnly bool) bool {
+	if !st.ok || first < 0 {
 		return false
 	}
 	s0 := b.cands[first]

@@ -907,7 +907,7 @@ func TestFarPruneHoldsNearest(t *testing.T) {
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			tiles, lists, kept, cands := holdsNearest(t, tc.f, tc.ix, tc.w, tc.h, func(b *bracketer, clat, clon float64, st *stencil, rho float64) []int {
-				if !b.farPrune(clat, clon, st, rho, false) {
+				if !b.farPrune(clat, clon, st, false) {
 					return nil
 				}
 				return slices.Clone(b.cands)
