@@ -64,19 +64,12 @@ type projLater struct {
 	nearest bool
 }
 
-// chordSites sets sc.sites to the sites of sc.cands with their ECEF
-// positions and chords from p, in increasing order of chord (a stable
-// sort: insertion sort's order, which long lists of dense training points
-// made quadratic), and returns them.
-func (sc *projScratch) chordSites(f *Field, p [3]float64) []projSite {
-	sites, _ := sc.chordSitesAsListed(f, p)
-	sortProjSites(sites)
-	return sites
-}
-
-// chordSitesAsListed is chordSites in sc.cands' order, unsorted, with the
-// position of the first site of shortest chord (-1 when there is none):
-// the sorted list's first.
+// chordSitesAsListed sets sc.sites to the sites of sc.cands with their
+// ECEF positions and chords from p, in sc.cands' order, and returns them
+// with the position of the first site of shortest chord (-1 when there is
+// none): the first of them sorted by chord with sortProjSites. Callers
+// sort only the sites they keep (anchorSites, nearSites): near dense
+// training points most of hundreds are left out.
 func (sc *projScratch) chordSitesAsListed(f *Field, p [3]float64) (sites []projSite, first int) {
 	ix, pts := f.ix, f.sitePoints()
 	sc.sites = sc.sites[:0]
@@ -838,31 +831,34 @@ func (b *projBracketer) cells(r0, r1, c0, c1 int, pc [3]float64, rho float64) {
 	b.cellsWith(r0, r1, c0, c1, rho, sites, near)
 }
 
-// nearSites returns the candidates in sc.cands by chord from the tile's
-// centre pc (chordSites) and, of them, those that can give a cell within
-// rho of pc its shortest chord (see below).
+// nearSites returns the candidates in sc.cands with their chords from the
+// tile's centre pc, in sc.cands' order (exact, which measures from them,
+// takes them in any order), and, of them, those that can give a cell
+// within rho of pc its shortest chord (see below), by increasing chord
+// (cellsWith's loop stops at the first too far): sorted after they are
+// picked, in the order a stable sort of all the candidates gives them,
+// since near dense training points only a few of hundreds are kept.
 func (b *projBracketer) nearSites(pc [3]float64, rho float64) (sites, near []projSite) {
 	sc := b.sc
-	sites = sc.chordSites(b.f, pc)
-	// A site q is farther by chord than the first (P_0) from every cell p
-	// of the tile when
+	sites, first := sc.chordSitesAsListed(b.f, pc)
+	// A site q is farther by chord than the first of shortest chord (P_0)
+	// from every cell p of the tile when
 	//
 	//	|p - P_q|^2 - |p - P_0|^2 = cc_q^2 - cc_0^2 - 2 (p - c).(P_q - P_0) >= cc_q^2 - cc_0^2 - 2 rho |P_q - P_0| > 0
 	//
 	// (the difference is linear in p; |p - c| <= rho): it is never the
 	// shortest chord, and is left out of the chords (with 1 m^2 and 1e-12
 	// cc_q^2 for rounding), though not out of an exact cell's sites.
-	near = append(sc.near[:0], sites...)
-	if len(near) > 1 {
-		p0, cc0 := near[0].p, near[0].cc
-		keep := near[:1]
-		for _, st := range near[1:] {
-			if st.cc*st.cc-cc0*cc0-2*rho*dist3(st.p, p0) > 1+1e-12*st.cc*st.cc {
+	near = sc.near[:0]
+	if first >= 0 {
+		p0, cc0 := sites[first].p, sites[first].cc
+		for q, st := range sites {
+			if q != first && st.cc*st.cc-cc0*cc0-2*rho*dist3(st.p, p0) > 1+1e-12*st.cc*st.cc {
 				continue
 			}
-			keep = append(keep, st)
+			near = append(near, st)
 		}
-		near = keep
+		sortProjSites(near)
 	}
 	sc.near = near
 	return sites, near

@@ -400,8 +400,8 @@ func TestPrunableSameBrackets(t *testing.T) {
 					tc.cen(r, c, c+1, lon, lat)
 					_, d1 := ix.NearestBounds(lat[0], lon[0], 0)
 					b.sc.cands = ix.Within(lat[0], lon[0], d1+2*30e3, b.sc.cands[:0])
-					sites := b.sc.chordSites(b.f, projECEF(lat[0], lon[0]))
-					for _, s := range b.prunable(sites, 0, lat[0], lon[0], 30e3, 0) {
+					sites, first := b.sc.chordSitesAsListed(b.f, projECEF(lat[0], lon[0]))
+					for _, s := range b.prunable(sites, first, lat[0], lon[0], 30e3, 0) {
 						if s {
 							left++
 						}
