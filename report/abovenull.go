@@ -363,8 +363,10 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // smallest to the largest extent (named as such, as the summary does).
 func aboveNullHeadline(s *Sensitivity) string {
 	var parts []string
+	nullsNamed := map[string]bool{}
 	for _, bg := range s.baseAUCGaps() {
 		an, g := bg.an, bg.g
+		nullsNamed[an.Null] = true
 		// The verb follows the interval: wholly above 0, wholly below it,
 		// or including it (no evidence either way).
 		verb := "is not above"
@@ -405,7 +407,9 @@ func aboveNullHeadline(s *Sensitivity) string {
 	if len(parts) == 0 {
 		return ""
 	}
-	return " Against the null: " + strings.Join(parts, "; ") + "."
+	// "the nulls" when the clauses name several ("Against the null:"
+	// before clauses on effort and distance_null was written).
+	return " Against the null" + Plural(len(nullsNamed)) + ": " + strings.Join(parts, "; ") + "."
 }
 
 // aboveNullRows gives the full "model minus null" table of the Analysis

@@ -238,7 +238,9 @@ func chainSentence(cs *ChainSummary, who string) string {
 	s := fmt.Sprintf("%s; %s the ring %s minus %s (%s km²)",
 		head, comes, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
 	if cs.Slope.Defined {
-		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signed3(cs.Slope.PerDoubling), cs.Slope.N)
+		// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
+		// reads as no change beside AUCs that do change.
+		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
 	}
 	if !st.AUCRingDefined {
 		return s + "." + tail

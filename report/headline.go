@@ -146,13 +146,28 @@ func rankingClause(rk ModelRanking) string {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
-		return fmt.Sprintf("%s and %s differ beyond noise on none of %d %s", a, b, n, rk.extentsWord())
+		return fmt.Sprintf("%s and %s %s", a, b, differOnNone(n, rk.extentsWord()))
 	}
 	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d %s", a, b, better, n, rk.extentsWord())
 	if worse > 0 {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
 	return out
+}
+
+// differOnNone says that two models differ beyond noise on none of the n
+// extents counted, word naming them after the count ("extents",
+// "extents compared"): "differ beyond noise on none of 9 extents", "on
+// neither of the 2 extents", and "do not differ beyond noise on the 1
+// extent" ("differ beyond noise on none of 1 extent" was written).
+func differOnNone(n int, word string) string {
+	switch n {
+	case 1:
+		return "do not differ beyond noise on the 1 " + word
+	case 2:
+		return "differ beyond noise on neither of the 2 " + word
+	}
+	return fmt.Sprintf("differ beyond noise on none of %d %s", n, word)
 }
 
 // extentsWord is "extents" (or "extent" for one) after the count of

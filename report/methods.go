@@ -474,12 +474,20 @@ func Plural(n int) string {
 	return "s"
 }
 
-// allExtents is "all n extents", or "the 1 extent" when n is 1.
-func allExtents(n int) string {
-	if n == 1 {
-		return "the 1 extent"
+// allExtents is "all n extents", "both extents" when n is 2, or "the 1
+// extent" when n is 1.
+func allExtents(n int) string { return allOfNoun(n, "extent") }
+
+// allOfNoun names every one of n things called noun: "all 13 extents",
+// "both models" for 2 ("all 2 extents" was written), "the 1 extent" for 1.
+func allOfNoun(n int, noun string) string {
+	switch n {
+	case 1:
+		return "the 1 " + noun
+	case 2:
+		return "both " + noun + "s"
 	}
-	return fmt.Sprintf("all %d extents", n)
+	return fmt.Sprintf("all %d %ss", n, noun)
 }
 
 // references are the methods cited in methods.md.

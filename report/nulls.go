@@ -176,7 +176,8 @@ func nullSentences(r *Results) string {
 				}
 			}
 			if len(ms) > 0 {
-				fmt.Fprintf(&b, " (models: %s)", strings.Join(ms, ", "))
+				// "(model: m 0.859)" for one ("(models: m 0.859)" was written).
+				fmt.Fprintf(&b, " (model%s: %s)", Plural(len(ms)), strings.Join(ms, ", "))
 			}
 		}
 		b.WriteString(".")

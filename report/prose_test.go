@@ -2,8 +2,11 @@ package report
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // The tests in this file drive the sentence writers with the numbers of
@@ -640,5 +643,149 @@ func TestWithinBracket(t *testing.T) {
 	}
 	if n == 0 {
 		t.Error("the sample has no verdict on the AUC with cells unweighted: the check above saw none")
+	}
+}
+
+// TestSharePercentsAddUp: the split of a sum of squares into extent,
+// model and non-additive parts prints whole percents that add up to 100,
+// in the sentence and in the table ("extent 50%, model 48% and
+// non-additive 3%" was written for shares 0.496, 0.477 and 0.027, and
+// "33%" three times for thirds); two models are "both models" ("scored
+// for all 2 models" was written). Expected percents worked by hand:
+// largest remainder, an earlier share first on a tie.
+func TestSharePercentsAddUp(t *testing.T) {
+	cases := []struct {
+		name   string
+		shares [3]float64
+		want   string
+		models int
+	}{
+		{"demo-like", [3]float64{0.496, 0.477, 0.027}, "for both models, the sum of squares of AUC splits into extent 49%, model 48% and non-additive 3%;", 2},
+		{"thirds", [3]float64{1.0 / 3, 1.0 / 3, 1.0 / 3}, "for all 3 models, the sum of squares of AUC splits into extent 34%, model 33% and non-additive 33%;", 3},
+		{"tiny ends", [3]float64{0.004, 0.992, 0.004}, "splits into extent 1%, model 99% and non-additive 0%;", 2},
+		{"exact", [3]float64{0.25, 0.5, 0.25}, "splits into extent 25%, model 50% and non-additive 25%;", 2},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			models := []string{"a", "b", "c"}[:c.models]
+			d := &Decomposition{Metric: "auc", Models: models, Extents: []string{"e1", "e2", "e3"}, Defined: true,
+				ShareExtent: c.shares[0], ShareModel: c.shares[1], ShareResidual: c.shares[2]}
+			got := decompositionSentence(MetricInfo{Key: "auc", Label: "AUC"}, d)
+			checkWords(t, "decomposition", got, []string{c.want}, []string{"all 2 models"})
+			v := decompositionSection(&Sensitivity{Decompositions: []Decomposition{*d}}, map[string]string{"auc": "AUC"})
+			sum := 0
+			for _, cl := range v.Table.Rows[0][2:5] {
+				n, err := strconv.Atoi(cl.text)
+				if err != nil {
+					t.Fatalf("table cell %q: %v", cl.text, err)
+				}
+				sum += n
+			}
+			if sum != 100 {
+				t.Errorf("table row %v adds up to %d%%, not 100", v.Table.Rows[0][2:5], sum)
+			}
+		})
+	}
+}
+
+// TestFewExtentsQuantifiers: model comparisons counted over one or two
+// extents say so in words that fit the count: "do not differ beyond noise
+// on the 1 extent", "on neither of the 2 extents", "score the same on both
+// extents" ("differ beyond noise on none of 1 extent" and "on all 2
+// extents" were written).
+func TestFewExtentsQuantifiers(t *testing.T) {
+	within := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Diff: 0.01, Low: -0.02, High: 0.04, Position: "inside"}
+	}
+	zero := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Position: "inside"}
+	}
+	cases := []struct {
+		name          string
+		rk            ModelRanking
+		want, notWant string
+	}{
+		{"one extent", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 1, WithinNoise: 1, Diffs: []ExtentDifference{within("base")}},
+			"a and b do not differ beyond noise on the 1 extent", "none of 1"},
+		{"two extents", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 2, WithinNoise: 2, Diffs: []ExtentDifference{within("base"), within("x")}},
+			"a and b differ beyond noise on neither of the 2 extents", "none of 2"},
+		{"three extents", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 3, WithinNoise: 3, Diffs: []ExtentDifference{within("base"), within("x"), within("y")}},
+			"a and b differ beyond noise on none of 3 extents", "neither"},
+		{"two identical", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 2, WithinNoise: 2, Diffs: []ExtentDifference{zero("base"), zero("x")}},
+			"a and b score the same on both extents", "all 2"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "ranking clause", rankingClause(c.rk), []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// TestAgainstTheNulls: the headline's clauses on the nulls open with
+// "Against the nulls:" when they name two nulls or more, and with
+// "Against the null:" when they name one, whatever the number of models
+// ("Against the null:" before clauses on effort and distance_null was
+// written).
+func TestAgainstTheNulls(t *testing.T) {
+	gap := func(model, null string) AboveNull {
+		return AboveNull{Metric: "auc", Model: model, Null: null, BaseExtent: "base", BaseReading: ReadingBelow, Defined: 1, Below: 1,
+			Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, Method: "placements", Diff: -0.3, Low: -0.4, High: -0.2, Reading: ReadingBelow}}}
+	}
+	cases := []struct {
+		name          string
+		ans           []AboveNull
+		want, notWant string
+	}{
+		{"two nulls", []AboveNull{gap("m", "effort"), gap("m", "distance_null")}, " Against the nulls: m is below effort", "Against the null:"},
+		{"one null, two models", []AboveNull{gap("m", "distance_null"), gap("k", "distance_null")}, " Against the null: m is below distance_null", "Against the nulls"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "headline", aboveNullHeadline(&Sensitivity{AboveNull: c.ans}), []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// TestNullSentenceModelsCounted: the methods' sentence on a null lists
+// the models' AUC on the base extent under "model:" when there is one
+// ("(models: md 0.859)" was written) and "models:" when there are more.
+func TestNullSentenceModelsCounted(t *testing.T) {
+	for _, c := range []struct {
+		models        []string
+		want, notWant string
+	}{
+		{[]string{"md"}, "was 0.885 on the base extent (model: md 0.859).", "models:"},
+		{[]string{"md", "ew"}, "was 0.885 on the base extent (models: md 0.859, ew 0.859).", "model:"},
+	} {
+		r := &Results{Extents: []Extent{{ID: "base", Status: vocab.StatusOK}, {ID: "x", Status: vocab.StatusOK}}}
+		for _, m := range c.models {
+			r.Models = append(r.Models, Model{Name: m, Role: RoleModel})
+			r.Scores = append(r.Scores, Score{Model: m, Extent: "base", Scored: true, AUC: 0.859})
+		}
+		r.Models = append(r.Models, Model{Name: "effort", Role: RoleNull, NullKind: NullRaster})
+		r.Scores = append(r.Scores, Score{Model: "effort", Extent: "base", Scored: true, AUC: 0.885}, Score{Model: "effort", Extent: "x", Scored: true, AUC: 0.9})
+		checkWords(t, "null sentence", nullSentences(r), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestChainSlopeNotPrintedAsZero: a chain's slope too small for three
+// decimals is printed with the digits that tell it from 0 ("AUC changes
+// by +0.000 per doubling" was written beside AUCs going from 0.604 to
+// 0.605); a slope of exactly 0 stays "+0.000".
+func TestChainSlopeNotPrintedAsZero(t *testing.T) {
+	for _, c := range []struct {
+		slope float64
+		want  string
+	}{
+		{0.0004, "changes by +0.0004 per doubling"},
+		{-0.0003, "changes by -0.0003 per doubling"},
+		{0.0123, "changes by +0.012 per doubling"},
+		{0, "changes by +0.000 per doubling"},
+	} {
+		cs := ChainSummary{Chain: "points", Model: "m", Members: []string{"a", "b", "c"}, MemberAreasKm2: []float64{10, 20, 40},
+			StartAUC: 0.604, EndAUC: 0.605, Change: 0.001, SharesDefined: true, Largest: 0,
+			Slope: Slope{Defined: true, PerDoubling: c.slope, N: 3},
+			Steps: []ChainStep{{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.604, AUCOuter: 0.605, AUCRing: 0.606, AUCRingDefined: true, Change: 0.001, Share: 1}}}
+		checkWords(t, "chain", chainSentence(&cs, "model"), []string{c.want}, nil)
 	}
 }

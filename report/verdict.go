@@ -679,8 +679,8 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			case r.Better == 0 && r.Worse == 0:
 				// "a is better than b on 0 of n" is true but reads as a
 				// finding.
-				r.Sentence = fmt.Sprintf("%s: %s and %s differ beyond noise on none of %d extent%s (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Extents, Plural(r.Extents))
+				r.Sentence = fmt.Sprintf("%s: %s and %s %s (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, differOnNone(r.Extents, "extent"+Plural(r.Extents)))
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			default:
 				// The model ahead first, as in the headline; the table
