@@ -244,10 +244,23 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		}
 		// "This describes ..." as a sentence of its own: a bracket after
 		// the counts' "(our cut-off)" read as two brackets in a row.
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s. This describes the family of extents; it is not a test.",
-			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
+		fmt.Fprintf(&b, " Across %d extents the gap %s; %s. This describes the family of extents; it is not a test.",
+			an.Defined, gapSpan("runs from", s.Diff, an.SmallestExtent, small, l.Diff, an.LargestExtent, large), counts)
 	}
 	return b.String()
+}
+
+// gapSpan says how the model-minus-null gap goes from the smallest
+// extent (a, its difference da, note na) to the largest (b, db, nb):
+// "moves from +0.042 on a (the smallest extent) to -0.055 on b (the
+// largest)" with verb "moves from", or, when the two print alike, "is
+// +0.100 on both a (...) and b (...)" ("moves from +0.100 ... to +0.100"
+// claimed a change the numbers do not show).
+func gapSpan(verb string, da float64, a, na string, db float64, b, nb string) string {
+	if signed3(da) == signed3(db) {
+		return fmt.Sprintf("is %s on both %s %s and %s %s", signed3(da), a, na, b, nb)
+	}
+	return fmt.Sprintf("%s %s on %s %s to %s on %s %s", verb, signed3(da), a, na, signed3(db), b, nb)
 }
 
 // notRead counts the defined gaps of an that are not read: kp on fewer
@@ -395,7 +408,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 		case an.Defined >= 2 && an.SmallestExtent != an.LargestExtent:
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			small, large := an.gapEnds()
-			part += fmt.Sprintf("; the gap moves from %s on %s %s to %s on %s %s", signed3(sm.Diff), an.SmallestExtent, small, signed3(lg.Diff), an.LargestExtent, large)
+			part += "; the gap " + gapSpan("moves from", sm.Diff, an.SmallestExtent, small, lg.Diff, an.LargestExtent, large)
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {

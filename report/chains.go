@@ -210,6 +210,14 @@ func chainSentence(cs *ChainSummary, who string) string {
 	if !cs.SharesDefined {
 		return head + ": it barely changes, so shares are not defined."
 	}
+	if f3(cs.StartAUC) == f3(cs.EndAUC) {
+		// The change is below the three decimals the sentence shows:
+		// "goes from 0.440 to 0.440; 242% of the gain comes from" named
+		// a gain the reader cannot see, and shares of so small a change
+		// say nothing (the steps stay in the table).
+		return fmt.Sprintf("%s: it changes by %s in all, less than the three decimals show, so no share of the change is given (each step is in the table).",
+			head, signedVs(cs.Change, 0))
+	}
 	st := cs.Steps[cs.Largest]
 	word := "gain"
 	if cs.Change < 0 {

@@ -96,11 +96,11 @@ func verdictPhrase(mv *ModelVerdict) string {
 	d := mv.Diffs[mv.Largest]
 	tol := mv.Tolerance
 	if d.Method == "exact" {
-		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedVs(d.Diff, tol, -tol), d.Extent)
+		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedSmall(d.Diff, tol, -tol), d.Extent)
 	}
 	if d.notJudged() {
 		// A description: no interval is quoted for a difference not judged.
-		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
+		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent, d.why())
 	}
 	if mv.Verdict == JudgementRobust && d.Diff == 0 {
 		// The largest difference is 0, so every one is: naming one
@@ -108,8 +108,8 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// says "every one is 0").
 		return fmt.Sprintf("%s (every difference from %s is 0)", mv.Verdict, mv.Base)
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), undeterminedWhy(mv, d))
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
+		signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), undeterminedWhy(mv, d))
 }
 
 // undeterminedWhy says, after the largest difference d of an undetermined
@@ -368,13 +368,21 @@ func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi
 			continue
 		}
 		against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
-		below := ""
+		rng := fmt.Sprintf("ranged %s–%s", f3(sp.Min), f3(sp.Max))
 		if sp.Max < 0.5 {
 			// Worse than a random ranking everywhere (point estimates):
 			// the range alone leaves the reader to notice it.
-			below = " (below 0.5, the AUC of a random ranking, on every extent)"
+			rng += " (below 0.5, the AUC of a random ranking, on every extent)"
 		}
-		parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
+		if f3(sp.Min) == f3(sp.Max) {
+			// "ranged 1.000–1.000" names a range the numbers do not have.
+			below := ""
+			if sp.Max < 0.5 {
+				below = "; below 0.5, the AUC of a random ranking"
+			}
+			rng = fmt.Sprintf("was %s on %s (to three decimals%s)", f3(sp.Min), allOfNoun(sp.N, "extent"), below)
+		}
+		parts = append(parts, fmt.Sprintf("AUC of %s %s and is %s", m, rng, verdictPhrase(mv)))
 	}
 	if len(parts) == 0 {
 		b.WriteString("no model has an AUC.")

@@ -474,6 +474,17 @@ func Plural(n int) string {
 	return "s"
 }
 
+// rangeOver says the range lo–hi of a score over (prep: "over",
+// "across") n extents: "ranged 0.704–0.893 over 13 extents", or "was
+// 1.000 on all 10 extents to three decimals" when both ends print alike
+// ("ranged 1.000–1.000" was written).
+func rangeOver(lo, hi float64, prep string, n int) string {
+	if f3(lo) == f3(hi) {
+		return fmt.Sprintf("was %s on %s to three decimals", f3(lo), allOfNoun(n, "extent"))
+	}
+	return fmt.Sprintf("ranged %s–%s %s %d extent%s", f3(lo), f3(hi), prep, n, Plural(n))
+}
+
 // allExtents is "all n extents", "both extents" when n is 2, or "the 1
 // extent" when n is 1.
 func allExtents(n int) string { return allOfNoun(n, "extent") }
@@ -525,8 +536,7 @@ func resultNumbers(r *Results) string {
 		if mv.BaseDefined {
 			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, Plural(sp.N),
-			onBase, verdictPhrase(mv))
+		t := fmt.Sprintf("AUC of %s %s (%s) and was %s", m, rangeOver(sp.Min, sp.Max, "over", sp.N), onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""
 			if sc := findScore(r, m, sp.Extents[0]); sc != nil {
@@ -617,7 +627,8 @@ func seText(sc *Score) string {
 	if sc == nil || sc.TestPoints < 2 {
 		return "no SE with fewer than two test records"
 	}
-	return fmt.Sprintf("SE %s from the test records", f3(sc.AUCSE))
+	// smallPositive: an SE of 0.0001 is not "0.000", no uncertainty.
+	return fmt.Sprintf("SE %s from the test records", smallPositive(sc.AUCSE))
 }
 
 // fmtP formats a p-value for a table cell: "< 0.001" or "0.042".

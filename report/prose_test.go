@@ -789,3 +789,103 @@ func TestChainSlopeNotPrintedAsZero(t *testing.T) {
 		checkWords(t, "chain", chainSentence(&cs, "model"), []string{c.want}, nil)
 	}
 }
+
+// TestTinyDifferencesNotPrintedAsZero: a difference, interval bound, SE or
+// x_E too small for three decimals prints the digits that tell it from 0,
+// with its own sign ("largest difference from base +0.000 on hull, 95%
+// interval +0.000 to +0.000" was written for -0.0003, a model ranking
+// every test point above nearly every cell); below 5e-7 (our cut-off)
+// it stays "+0.000". Expected strings worked by hand.
+func TestTinyDifferencesNotPrintedAsZero(t *testing.T) {
+	d := ExtentDifference{Extent: "hull", Defined: true, Diff: -0.0003, Low: -0.00034, High: -0.00026, Method: "placements", Position: "inside"}
+	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Diffs: []ExtentDifference{d}, Largest: 0, BaseDefined: true}
+	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"robust (largest difference from base -0.0003 on hull, 95% interval -0.0003 to -0.0003)"}, []string{"+0.000"})
+	checkWords(t, "difference", differenceText(d, 0.02), []string{"-0.0003 on hull (95% interval -0.0003 to -0.0003)"}, []string{"0.000 "})
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{-0.0003, "-0.0003"}, {0.00002, "+0.00002"}, {0.0123, "+0.012"}, {0, "+0.000"}, {1e-9, "+0.000"}, {-1e-9, "+0.000"},
+	} {
+		if got := signedSmall(c.v); got != c.want {
+			t.Errorf("signedSmall(%g) = %q, want %q", c.v, got, c.want)
+		}
+	}
+	// A tolerance still gets the digits that tell a bound from it.
+	if got := signedSmall(0.0200001, 0.02, -0.02); got != "+0.0200001" {
+		t.Errorf("signedSmall near the tolerance = %q", got)
+	}
+	if got := seText(&Score{TestPoints: 15, AUCSE: 0.00012}); got != "SE 0.0001 from the test records" {
+		t.Errorf("seText = %q", got)
+	}
+}
+
+// TestRangeOfOneValue: a score that prints alike on every extent is said
+// to be that value on every extent, not to range from it to itself
+// ("AUC of good ranged 1.000–1.000" was written); a real range reads as
+// before.
+func TestRangeOfOneValue(t *testing.T) {
+	for _, c := range []struct {
+		lo, hi float64
+		n      int
+		want   string
+	}{
+		{0.99971, 0.99996, 10, "was 1.000 on all 10 extents to three decimals"},
+		{0.5, 0.5004, 2, "was 0.500 on both extents to three decimals"},
+		{0.704, 0.893, 13, "ranged 0.704–0.893 over 13 extents"},
+	} {
+		if got := rangeOver(c.lo, c.hi, "over", c.n); got != c.want {
+			t.Errorf("rangeOver(%g, %g, %d) = %q, want %q", c.lo, c.hi, c.n, got, c.want)
+		}
+	}
+}
+
+// TestGapSameAtBothEnds: a model-minus-null gap that prints alike on the
+// smallest and the largest extent is said to be that on both, not to
+// move ("the gap moves from +0.100 on a to +0.100 on b" was written).
+func TestGapSameAtBothEnds(t *testing.T) {
+	got := gapSpan("moves from", 0.1002, "a", "(the smallest extent)", 0.0998, "b", "(the largest)")
+	if want := "is +0.100 on both a (the smallest extent) and b (the largest)"; got != want {
+		t.Errorf("gapSpan = %q, want %q", got, want)
+	}
+	got = gapSpan("runs from", 0.042, "a", "(the smallest extent)", -0.055, "b", "(the largest)")
+	if want := "runs from +0.042 on a (the smallest extent) to -0.055 on b (the largest)"; got != want {
+		t.Errorf("gapSpan = %q, want %q", got, want)
+	}
+}
+
+// TestChainChangeBelowDecimals: a nested chain whose AUC prints alike at
+// both ends gives no share of its change ("goes from 0.440 to 0.440; 242%
+// of the gain comes from the ring ..." was written, a gain the reader
+// cannot see); it says the change, with its digits.
+func TestChainChangeBelowDecimals(t *testing.T) {
+	cs := ChainSummary{Chain: "region", Model: "n4", Members: []string{"a", "b", "c"}, MemberAreasKm2: []float64{174000, 300000, 712000},
+		StartAUC: 0.4401, EndAUC: 0.4403, Change: 0.0002, SharesDefined: true, Largest: 0,
+		Steps: []ChainStep{
+			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 126000, AUCInner: 0.4401, AUCOuter: 0.4406, AUCRing: 0.441, AUCRingDefined: true, Change: 0.0005, Share: 2.5},
+			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 412000, AUCInner: 0.4406, AUCOuter: 0.4403, AUCRing: 0.4401, AUCRingDefined: true, Change: -0.0003, Share: -1.5},
+		}}
+	checkWords(t, "chain", chainSentence(&cs, "model"),
+		[]string{"goes from 0.440 (a, 174,000 km²) to 0.440 (c, 712,000 km²): it changes by +0.0002 in all, less than the three decimals show, so no share of the change is given"},
+		[]string{"of the gain", "250%"})
+}
+
+// TestHeadlineOneValue: the headline says a model's AUC is one value on
+// every extent when its ends print alike (AUCs set by hand to 0.9996 +
+// k 1e-5 on the sample's extents), not "ranged 1.000–1.000"; the
+// methods' results say the same.
+func TestHeadlineOneValue(t *testing.T) {
+	r := loadSample(t)
+	k := 0
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" && r.Scores[i].Scored {
+			r.Scores[i].AUC = 0.9996 + float64(k)*1e-5
+			k++
+		}
+	}
+	s := analyzed(t, r)
+	sp := s.findSpread("auc", "broad")
+	want := fmt.Sprintf("AUC of broad was 1.000 on all %d extents (to three decimals) and is", sp.N)
+	checkWords(t, "headline", s.Headline, []string{want}, []string{"ranged 1.000–1.000"})
+	checkWords(t, "methods", methodsText(r), []string{fmt.Sprintf("AUC of broad was 1.000 on all %d extents to three decimals (", sp.N)}, []string{"ranged 1.000–1.000"})
+}
