@@ -215,8 +215,14 @@ func chainSentence(cs *ChainSummary, who string) string {
 		// "goes from 0.440 to 0.440; 242% of the gain comes from" named
 		// a gain the reader cannot see, and shares of so small a change
 		// say nothing (the steps stay in the table).
-		return fmt.Sprintf("%s: it changes by %s in all, less than the three decimals show, so no share of the change is given (each step is in the table).",
-			head, signedVs(cs.Change, 0))
+		// Four decimals at least: a change of 0.0008 between 0.4396 and
+		// 0.4404 is "+0.0008", not "+0.001", which the two ends deny.
+		ch := signedDec(cs.Change, 4)
+		if math.Abs(cs.Change) < 5e-5 {
+			ch = signedVs(cs.Change, 0)
+		}
+		return fmt.Sprintf("%s: it changes by %s in all, which the three decimals do not show, so no share of the change is given (each step is in the table).",
+			head, ch)
 	}
 	st := cs.Steps[cs.Largest]
 	word := "gain"

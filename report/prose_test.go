@@ -866,8 +866,14 @@ func TestChainChangeBelowDecimals(t *testing.T) {
 			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 412000, AUCInner: 0.4406, AUCOuter: 0.4403, AUCRing: 0.4401, AUCRingDefined: true, Change: -0.0003, Share: -1.5},
 		}}
 	checkWords(t, "chain", chainSentence(&cs, "model"),
-		[]string{"goes from 0.440 (a, 174,000 km²) to 0.440 (c, 712,000 km²): it changes by +0.0002 in all, less than the three decimals show, so no share of the change is given"},
+		[]string{"goes from 0.440 (a, 174,000 km²) to 0.440 (c, 712,000 km²): it changes by +0.0002 in all, which the three decimals do not show, so no share of the change is given"},
 		[]string{"of the gain", "250%"})
+	// Ends 0.4396 and 0.4404 both print 0.440; their change is +0.0008,
+	// not "+0.001" (worked by hand).
+	cs.StartAUC, cs.EndAUC, cs.Change = 0.4396, 0.4404, 0.0008
+	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.0008 in all"}, []string{"+0.001"})
+	cs.StartAUC, cs.EndAUC, cs.Change = 0.44, 0.44002, 0.00002
+	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.00002 in all"}, nil)
 }
 
 // TestHeadlineOneValue: the headline says a model's AUC is one value on
