@@ -771,7 +771,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 // judge.
 func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	n := len(s.ScoredExtents)
-	var robust, sensitive, undetermined []string
+	var robust, sensitive, sensitiveAll, undetermined []string
 	for _, v := range s.Verdicts {
 		if v.Metric == MetricKeyBoyce {
 			continue // described, not judged: said with the tolerances
@@ -782,10 +782,12 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 				label = metricPhrase(m) // no comma inside a list
 			}
 		}
-		switch v.Verdict {
-		case JudgementRobust:
+		switch {
+		case v.Verdict == JudgementRobust:
 			robust = append(robust, label)
-		case JudgementSensitive:
+		case v.Verdict == JudgementSensitive && s.sensitiveForEvery(v.Metric):
+			sensitiveAll = append(sensitiveAll, label)
+		case v.Verdict == JudgementSensitive:
 			sensitive = append(sensitive, label)
 		default:
 			undetermined = append(undetermined, label)
@@ -794,7 +796,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	if n == 1 {
 		// Nothing to compare: the verdicts are undetermined for want of a
 		// second extent, not of test records.
-		robust, sensitive, undetermined = nil, nil, nil
+		robust, sensitive, sensitiveAll, undetermined = nil, nil, nil, nil
 		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
 	// With one model, "for at least one model" and "for every model"
@@ -802,6 +804,11 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	some, every := "for at least one model", "for every model"
 	if len(s.ModelNames) == 1 {
 		some, every = "for "+s.ModelNames[0], "for "+s.ModelNames[0]
+	}
+	if len(sensitiveAll) > 0 {
+		// Every model: "for at least one model" would say less than
+		// the verdicts (the demo's AUC, extent-sensitive for both).
+		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitiveAll)), every)
 	}
 	if len(sensitive) > 0 {
 		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
@@ -824,6 +831,22 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		}
 		fmt.Fprintf(b, "For %s %s (%s). ", joinList(undetermined), who, why)
 	}
+}
+
+// sensitiveForEvery tells whether metric is extent-sensitive for every
+// model of s (each model's own verdict).
+func (s *Sensitivity) sensitiveForEvery(metric string) bool {
+	n := 0
+	for _, mv := range s.ModelVerdicts {
+		if mv.Metric != metric {
+			continue
+		}
+		if mv.Verdict != JudgementSensitive {
+			return false
+		}
+		n++
+	}
+	return n > 0 && n == len(s.ModelNames)
 }
 
 // fewResamples tells whether some difference from the base extent was

@@ -895,3 +895,23 @@ func TestHeadlineOneValue(t *testing.T) {
 	checkWords(t, "headline", s.Headline, []string{want}, []string{"ranged 1.000–1.000"})
 	checkWords(t, "methods", methodsText(r), []string{fmt.Sprintf("AUC of broad was 1.000 on all %d extents to three decimals (", sp.N)}, []string{"ranged 1.000–1.000"})
 }
+
+// TestReplySensitiveForEvery: the reply says a score moved beyond the
+// tolerance "for every model" when each model's verdict is
+// extent-sensitive, and "for at least one model" when only some are
+// ("AUC ... moved with the extent by more than the tolerance for at least
+// one model" was written when it did for both of the demo's models).
+func TestReplySensitiveForEvery(t *testing.T) {
+	s := &Sensitivity{ModelNames: []string{"a", "b"}, ScoredExtents: []string{"base", "x", "y"},
+		Metrics:  []MetricInfo{{Key: "auc", Label: "AUC"}, {Key: "pa", Label: "predicted area"}},
+		Verdicts: []Verdict{{Metric: "auc", Label: "AUC", Verdict: JudgementSensitive}, {Metric: "pa", Label: "predicted area", Verdict: JudgementSensitive}},
+		ModelVerdicts: []ModelVerdict{
+			{Metric: "auc", Model: "a", Verdict: JudgementSensitive}, {Metric: "auc", Model: "b", Verdict: JudgementSensitive},
+			{Metric: "pa", Model: "a", Verdict: JudgementSensitive}, {Metric: "pa", Model: "b", Verdict: JudgementRobust},
+		}}
+	var b strings.Builder
+	reviewerVerdicts(&b, s)
+	checkWords(t, "reply", b.String(),
+		[]string{"AUC moved with the extent by more than the tolerance for every model.", "Predicted area moved with the extent by more than the tolerance for at least one model."},
+		[]string{"AUC and predicted area moved"})
+}
