@@ -199,23 +199,23 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
 	case an.BaseReading == ReadingTooFewResamples:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
 		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		// An interval that includes 0 tells neither that the model is
 		// above the null nor that it is not: no evidence either way.
 		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.allZero() {
 		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
@@ -257,10 +257,10 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 // +0.100 on both a (...) and b (...)" ("moves from +0.100 ... to +0.100"
 // claimed a change the numbers do not show).
 func gapSpan(verb string, da float64, a, na string, db float64, b, nb string) string {
-	if signed3(da) == signed3(db) {
-		return fmt.Sprintf("is %s on both %s %s and %s %s", signed3(da), a, na, b, nb)
+	if signedSmall(da) == signedSmall(db) {
+		return fmt.Sprintf("is %s on both %s %s and %s %s", signedSmall(da), a, na, b, nb)
 	}
-	return fmt.Sprintf("%s %s on %s %s to %s on %s %s", verb, signed3(da), a, na, signed3(db), b, nb)
+	return fmt.Sprintf("%s %s on %s %s to %s on %s %s", verb, signedSmall(da), a, na, signedSmall(db), b, nb)
 }
 
 // notRead counts the defined gaps of an that are not read: kp on fewer
@@ -390,17 +390,17 @@ func aboveNullHeadline(s *Sensitivity) string {
 			verb = "is below"
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
-			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		if !notJudgedPosition(an.BaseReading) && g.zero() {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
+				signedSmall(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
 		}
 		if an.BaseReading == ReadingTooFewResamples {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s, not judged, %s)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.why())
+				signedSmall(g.Diff), g.why())
 		}
 		switch {
 		case an.Defined >= 2 && an.allZero():
@@ -480,9 +480,9 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			text := fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
+			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
 			if notJudgedPosition(g.Reading) {
-				text = fmt.Sprintf("%s, not judged (%s)", signed3(g.Diff), g.why())
+				text = fmt.Sprintf("%s, not judged (%s)", signedSmall(g.Diff), g.why())
 			}
 			row = append(row, cell{text: text, num: g.Diff, isN: true, cls: "n"})
 		}

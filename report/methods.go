@@ -986,7 +986,7 @@ func reviewerNullText(s *Sensitivity) string {
 			ns = append(ns, n)
 		}
 		// The number is the difference from the null, not the AUC.
-		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		switch {
 		case an.BaseReading == ReadingTooFew:
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, Plural(g.CommonPoints)))

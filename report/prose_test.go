@@ -915,3 +915,22 @@ func TestReplySensitiveForEvery(t *testing.T) {
 		[]string{"AUC moved with the extent by more than the tolerance for every model.", "Predicted area moved with the extent by more than the tolerance for at least one model."},
 		[]string{"AUC and predicted area moved"})
 }
+
+// TestTinyNullGapNotPrintedAsZero: a model that nearly copies the null
+// has its gap printed with the digits and sign that tell it from 0 ("R
+// is not above distance_null beyond noise on base (AUC difference
+// +0.000, 95% interval -0.0002 to +0.00003)" was written for -0.0001).
+func TestTinyNullGapNotPrintedAsZero(t *testing.T) {
+	an := AboveNull{Metric: "auc", Model: "R", Null: "distance_null", BaseExtent: "base", BaseReading: ReadingNotAbove, Defined: 2, NotAbove: 2,
+		SmallestExtent: "hull", LargestExtent: "base",
+		Gaps: []NullGap{
+			{Extent: "base", AreaKm2: 267000, Defined: true, CommonPoints: 39, Method: "placements", ModelValue: 0.8593, NullValue: 0.8594, Diff: -0.0001, Low: -0.0002, High: 0.00003, Reading: ReadingNotAbove},
+			{Extent: "hull", AreaKm2: 50200, Defined: true, CommonPoints: 33, Method: "placements", ModelValue: 0.5923, NullValue: 0.5923, Diff: 0.00004, Low: -0.0001, High: 0.0002, Reading: ReadingNotAbove},
+		}}
+	head := aboveNullHeadline(&Sensitivity{AboveNull: []AboveNull{an}})
+	checkWords(t, "headline", head, []string{"R is not above distance_null beyond noise on base (AUC difference -0.0001, 95% interval -0.0002 to +0.00003)",
+		"the gap moves from +0.00004 on hull (the smallest extent) to -0.0001 on base (the largest)"}, []string{"+0.000 "})
+	got := aboveNullSentence(&Results{}, MetricInfo{Key: "auc", Label: "AUC", Kind: MetricAUC}, &an)
+	checkWords(t, "sentence", got, []string{"the difference -0.0001 (0.859 against 0.859) has a 95% interval -0.0002 to +0.00003 that includes 0",
+		"the gap runs from +0.00004 on hull"}, []string{"+0.000 "})
+}
