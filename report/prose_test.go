@@ -934,3 +934,33 @@ func TestTinyNullGapNotPrintedAsZero(t *testing.T) {
 	checkWords(t, "sentence", got, []string{"the difference -0.0001 (0.859 against 0.859) has a 95% interval -0.0002 to +0.00003 that includes 0",
 		"the gap runs from +0.00004 on hull"}, []string{"+0.000 "})
 }
+
+// TestTermsNameWhatThePageHolds: the Terms section names the spatial
+// sorting bias among the descriptions only when the run scored the
+// distance-only null, which computes it (--no-distance-null skips both),
+// and defines a null of the user's when the run has one.
+func TestTermsNameWhatThePageHolds(t *testing.T) {
+	page := func(r *Results) string {
+		t.Helper()
+		b, err := htmlPage(r, nil, "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	plain := analyzedSample(t)
+	checkWords(t, "page without nulls", page(plain),
+		[]string{"the sums of squares of the models × extents table and Kendall&#39;s W describe this family"},
+		[]string{"spatial sorting bias describe", "<dt>null</dt>", "<dt>distance-only null</dt>"})
+	r := withNull(t)
+	analyzed(t, r)
+	checkWords(t, "page with the distance-only null", page(r),
+		[]string{"Kendall&#39;s W and the spatial sorting bias describe this family", "<dt>distance-only null</dt>"}, []string{"<dt>null</dt>"})
+	for i := range r.Models {
+		if r.Models[i].IsNull() {
+			r.Models[i].NullKind = NullRaster
+		}
+	}
+	checkWords(t, "page with a null of the user's", page(r),
+		[]string{"<dt>null</dt><dd>A raster marked as a null (--null)", "table and Kendall&#39;s W describe"}, []string{"<dt>distance-only null</dt>"})
+}
