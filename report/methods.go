@@ -562,9 +562,17 @@ func resultNumbers(r *Results) string {
 			out += " " + methodsRankingText(rk)
 		}
 	}
-	if s.Independence.Defined {
+	if ind := s.Independence; ind.Defined && ind.N == 1 {
+		// One test record: no median and no share ("Test records lay a
+		// median 40.1 km ...; 0% lay within" was written).
+		within := "beyond"
+		if ind.NearCount == 1 {
+			within = "within"
+		}
+		out += fmt.Sprintf(" The one test record lay %s km from the nearest training record, %s %g cell widths.", trimFloat(ind.Min, 3), within, NearCells)
+	} else if ind.Defined {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
-			trimFloat(s.Independence.Median, 3), pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
+			trimFloat(ind.Median, 3), pctVs(ind.NearShare, NearShareWarn), NearCells)
 	}
 	out += nullSentences(r)
 	return strings.TrimSpace(out)

@@ -964,3 +964,21 @@ func TestTermsNameWhatThePageHolds(t *testing.T) {
 	checkWords(t, "page with a null of the user's", page(r),
 		[]string{"<dt>null</dt><dd>A raster marked as a null (--null)", "table and Kendall&#39;s W describe"}, []string{"<dt>distance-only null</dt>"})
 }
+
+// TestOneTestRecordDistance: the methods' results give the one test
+// record's distance as such, not as a median with a share ("Test records
+// lay a median 40.1 km from the nearest training record; 0% lay within 3
+// cell widths" was written for a run with one test record).
+func TestOneTestRecordDistance(t *testing.T) {
+	for _, c := range []struct {
+		ind           Independence
+		want, notWant string
+	}{
+		{Independence{Defined: true, N: 1, Min: 40.1, Median: 40.1, Max: 40.1}, "The one test record lay 40.1 km from the nearest training record, beyond 3 cell widths.", "median"},
+		{Independence{Defined: true, N: 1, Min: 2.5, Median: 2.5, Max: 2.5, NearCount: 1, NearShare: 1}, "The one test record lay 2.5 km from the nearest training record, within 3 cell widths.", "median"},
+		{Independence{Defined: true, N: 39, Min: 1, Median: 14.7, Max: 85, NearCount: 16, NearShare: 16.0 / 39}, "Test records lay a median 14.7 km from the nearest training record; 41% lay within 3 cell widths.", "one test record"},
+	} {
+		r := &Results{Sensitivity: &Sensitivity{Independence: c.ind}}
+		checkWords(t, "results", resultNumbers(r), []string{c.want}, []string{c.notWant})
+	}
+}
