@@ -982,3 +982,19 @@ func TestOneTestRecordDistance(t *testing.T) {
 		checkWords(t, "results", resultNumbers(r), []string{c.want}, []string{c.notWant})
 	}
 }
+
+// TestMapCaptionPanelsLeft: the maps' caption counts the panels that do
+// not fit in words that agree with the count ("1 more panels (...) do not
+// fit" would be written for one).
+func TestMapCaptionPanelsLeft(t *testing.T) {
+	r := analyzedSample(t)
+	groups := mapGroups(r)
+	if len(groups) < 3 {
+		t.Fatalf("the sample has %d map panels, the test needs 3", len(groups))
+	}
+	model := r.Models[0].Name
+	one := mapCaption(r, model, groups[:len(groups)-1], groups, mapMarks{}, 1)
+	checkWords(t, "caption", one, []string{" 1 more panel (" + groups[len(groups)-1].title + ") does not fit on the page;"}, []string{"panels", "do not fit"})
+	two := mapCaption(r, model, groups[:len(groups)-2], groups, mapMarks{}, 2)
+	checkWords(t, "caption", two, []string{" 2 more panels (", ") do not fit on the page;"}, nil)
+}
