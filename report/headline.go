@@ -294,7 +294,9 @@ func (s *Sensitivity) scoredNowhere() []string {
 // never the sums-of-squares split (a property of the chosen family).
 func headline(a *analysis, s *Sensitivity) string {
 	if len(s.ScoredExtents) == 0 {
-		return "No extent could be scored, so the scores cannot be compared across extents."
+		// "No model", not "no extent": a null may be scored on every
+		// extent while no model is (a constant model alone).
+		return "No model could be scored on any extent, so the scores cannot be compared across extents."
 	}
 	lo, hi := scoredAreaRange(a, s)
 	var b strings.Builder

@@ -58,7 +58,7 @@ type loneNotes struct {
 func loneExtentNotes(s *Sensitivity) *loneNotes {
 	switch len(s.ScoredExtents) {
 	case 0:
-		const none = "No extent could be scored, so there is nothing to compare"
+		const none = "No model could be scored on any extent, so there is nothing to compare"
 		return &loneNotes{
 			Differences:   none + ": no score has a difference from another extent.",
 			Spread:        none + ": no score has a spread across extents.",

@@ -229,7 +229,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 		// tolerances they use and the descriptions across extents were
 		// not made, and the methods must not say they were.
 		if len(s.ScoredExtents) == 0 {
-			b.WriteString(" No extent could be scored, so no score was compared or judged.\n\n")
+			b.WriteString(" No model could be scored on any extent, so no score was compared or judged.\n\n")
 			return
 		}
 		b.WriteString(" With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.")

@@ -540,7 +540,7 @@ func TestAnalysisNotesNothingToCompare(t *testing.T) {
 	// No extent scored: the notes' words, from the writer itself.
 	none := loneExtentNotes(&Sensitivity{})
 	for _, n := range []string{none.Differences, none.Spread, none.Decomposition} {
-		checkWords(t, "note", n, []string{"No extent could be scored, so there is nothing to compare"}, nil)
+		checkWords(t, "note", n, []string{"No model could be scored on any extent, so there is nothing to compare"}, nil)
 	}
 	if loneExtentNotes(&Sensitivity{ScoredExtents: []string{"base", "hull"}}) != nil {
 		t.Error("two scored extents given the notes of one")
