@@ -1,6 +1,7 @@
 package report
 
 import (
+	"encoding/json"
 	"fmt"
 	"strconv"
 	"strings"
@@ -997,4 +998,39 @@ func TestMapCaptionPanelsLeft(t *testing.T) {
 	checkWords(t, "caption", one, []string{" 1 more panel (" + groups[len(groups)-1].title + ") does not fit on the page;"}, []string{"panels", "do not fit"})
 	two := mapCaption(r, model, groups[:len(groups)-2], groups, mapMarks{}, 2)
 	checkWords(t, "caption", two, []string{" 2 more panels (", ") do not fit on the page;"}, nil)
+}
+
+// TestExplorerOpensOnTheReference: the extent explorer opens on the
+// extent every difference is taken from: the base extent, or the
+// reference extent standing in for an unscored base (it opened on the
+// base, where it could only say "Model good is not scored on base").
+func TestExplorerOpensOnTheReference(t *testing.T) {
+	open := func(r *Results) string {
+		t.Helper()
+		b, err := teachData(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var pl teachPayload
+		if err := json.Unmarshal(b, &pl); err != nil {
+			t.Fatal(err)
+		}
+		return pl.Default
+	}
+	r := analyzedSample(t)
+	if got := open(r); got != vocab.BaseID {
+		t.Errorf("explorer opens on %q, want %q", got, vocab.BaseID)
+	}
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
+		t.Fatalf("reference extent %q", s.BaseExtent)
+	}
+	if got := open(r); got != s.BaseExtent {
+		t.Errorf("explorer opens on %q, want the reference extent %q", got, s.BaseExtent)
+	}
 }
