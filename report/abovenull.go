@@ -199,23 +199,23 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			f3(g.ModelValue), f3(g.NullValue))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
 	case an.BaseReading == ReadingTooFewResamples:
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
 		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
 		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		// An interval that includes 0 tells neither that the model is
 		// above the null nor that it is not: no evidence either way.
 		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
-			signed3(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.allZero() {
 		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
@@ -244,10 +244,23 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		}
 		// "This describes ..." as a sentence of its own: a bracket after
 		// the counts' "(our cut-off)" read as two brackets in a row.
-		fmt.Fprintf(&b, " Across %d extents the gap runs from %s on %s %s to %s on %s %s; %s. This describes the family of extents; it is not a test.",
-			an.Defined, signed3(s.Diff), an.SmallestExtent, small, signed3(l.Diff), an.LargestExtent, large, counts)
+		fmt.Fprintf(&b, " Across %d extents the gap %s; %s. This describes the family of extents; it is not a test.",
+			an.Defined, gapSpan("runs from", s.Diff, an.SmallestExtent, small, l.Diff, an.LargestExtent, large), counts)
 	}
 	return b.String()
+}
+
+// gapSpan says how the model-minus-null gap goes from the smallest
+// extent (a, its difference da, note na) to the largest (b, db, nb):
+// "moves from +0.042 on a (the smallest extent) to -0.055 on b (the
+// largest)" with verb "moves from", or, when the two print alike, "is
+// +0.100 on both a (...) and b (...)" ("moves from +0.100 ... to +0.100"
+// claimed a change the numbers do not show).
+func gapSpan(verb string, da float64, a, na string, db float64, b, nb string) string {
+	if signedSmall(da) == signedSmall(db) {
+		return fmt.Sprintf("is %s on both %s %s and %s %s", signedSmall(da), a, na, b, nb)
+	}
+	return fmt.Sprintf("%s %s on %s %s to %s on %s %s", verb, signedSmall(da), a, na, signedSmall(db), b, nb)
 }
 
 // notRead counts the defined gaps of an that are not read: kp on fewer
@@ -363,8 +376,10 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // smallest to the largest extent (named as such, as the summary does).
 func aboveNullHeadline(s *Sensitivity) string {
 	var parts []string
+	nullsNamed := map[string]bool{}
 	for _, bg := range s.baseAUCGaps() {
 		an, g := bg.an, bg.g
+		nullsNamed[an.Null] = true
 		// The verb follows the interval: wholly above 0, wholly below it,
 		// or including it (no evidence either way).
 		verb := "is not above"
@@ -375,17 +390,17 @@ func aboveNullHeadline(s *Sensitivity) string {
 			verb = "is below"
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
-			signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+			signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		if !notJudgedPosition(an.BaseReading) && g.zero() {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
+				signedSmall(g.Diff), g.CommonPoints, Plural(g.CommonPoints), MinPairedPoints)
 		}
 		if an.BaseReading == ReadingTooFewResamples {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s, not judged, %s)", an.Model, an.Null, an.BaseExtent,
-				signed3(g.Diff), g.why())
+				signedSmall(g.Diff), g.why())
 		}
 		switch {
 		case an.Defined >= 2 && an.allZero():
@@ -393,7 +408,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 		case an.Defined >= 2 && an.SmallestExtent != an.LargestExtent:
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			small, large := an.gapEnds()
-			part += fmt.Sprintf("; the gap moves from %s on %s %s to %s on %s %s", signed3(sm.Diff), an.SmallestExtent, small, signed3(lg.Diff), an.LargestExtent, large)
+			part += "; the gap " + gapSpan("moves from", sm.Diff, an.SmallestExtent, small, lg.Diff, an.LargestExtent, large)
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {
@@ -405,7 +420,9 @@ func aboveNullHeadline(s *Sensitivity) string {
 	if len(parts) == 0 {
 		return ""
 	}
-	return " Against the null: " + strings.Join(parts, "; ") + "."
+	// "the nulls" when the clauses name several ("Against the null:"
+	// before clauses on effort and distance_null was written).
+	return " Against the null" + Plural(len(nullsNamed)) + ": " + strings.Join(parts, "; ") + "."
 }
 
 // aboveNullRows gives the full "model minus null" table of the Analysis
@@ -463,9 +480,9 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			text := fmt.Sprintf("%s (%s to %s) %s", signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
+			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
 			if notJudgedPosition(g.Reading) {
-				text = fmt.Sprintf("%s, not judged (%s)", signed3(g.Diff), g.why())
+				text = fmt.Sprintf("%s, not judged (%s)", signedSmall(g.Diff), g.why())
 			}
 			row = append(row, cell{text: text, num: g.Diff, isN: true, cls: "n"})
 		}

@@ -210,6 +210,20 @@ func chainSentence(cs *ChainSummary, who string) string {
 	if !cs.SharesDefined {
 		return head + ": it barely changes, so shares are not defined."
 	}
+	if f3(cs.StartAUC) == f3(cs.EndAUC) {
+		// The change is below the three decimals the sentence shows:
+		// "goes from 0.440 to 0.440; 242% of the gain comes from" named
+		// a gain the reader cannot see, and shares of so small a change
+		// say nothing (the steps stay in the table).
+		// Four decimals at least: a change of 0.0008 between 0.4396 and
+		// 0.4404 is "+0.0008", not "+0.001", which the two ends deny.
+		ch := signedDec(cs.Change, 4)
+		if math.Abs(cs.Change) < 5e-5 {
+			ch = signedVs(cs.Change, 0)
+		}
+		return fmt.Sprintf("%s: it changes by %s in all, which the three decimals do not show, so no share of the change is given (each step is in the table).",
+			head, ch)
+	}
 	st := cs.Steps[cs.Largest]
 	word := "gain"
 	if cs.Change < 0 {
@@ -238,7 +252,9 @@ func chainSentence(cs *ChainSummary, who string) string {
 	s := fmt.Sprintf("%s; %s the ring %s minus %s (%s km²)",
 		head, comes, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
 	if cs.Slope.Defined {
-		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signed3(cs.Slope.PerDoubling), cs.Slope.N)
+		// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
+		// reads as no change beside AUCs that do change.
+		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
 	}
 	if !st.AUCRingDefined {
 		return s + "." + tail

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"sort"
 	"strings"
 )
@@ -162,8 +163,9 @@ func orderByRank(models []string, ranks []float64) []string {
 }
 
 func decompositionSentence(m MetricInfo, d *Decomposition) string {
-	s := fmt.Sprintf("Over this family of %d extents scored for all %d models, the sum of squares of %s splits into extent %s, model %s and non-additive %s; the split is a property of the extents chosen (another family gives another split), so it describes this table only.",
-		len(d.Extents), len(d.Models), m.Label, pct(d.ShareExtent), pct(d.ShareModel), pct(d.ShareResidual))
+	p := sharePercents(d.ShareExtent, d.ShareModel, d.ShareResidual)
+	s := fmt.Sprintf("Over this family of %d extents scored for %s, the sum of squares of %s splits into extent %d%%, model %d%% and non-additive %d%%; the split is a property of the extents chosen (another family gives another split), so it describes this table only.",
+		len(d.Extents), allOfNoun(len(d.Models), "model"), m.Label, p[0], p[1], p[2])
 	if d.KendallWDefined {
 		s += fmt.Sprintf(" Kendall's W = %s (a description of agreement, no test): ", f3(d.KendallW))
 		if len(d.DiffersFromBase) == 0 {
@@ -177,4 +179,33 @@ func decompositionSentence(m MetricInfo, d *Decomposition) string {
 		s += " Kendall's W is undefined: the models tie on every extent."
 	}
 	return s
+}
+
+// sharePercents rounds shares that add up to 1 (the extent, model and
+// non-additive parts of a sum of squares) to whole percents that add up
+// to 100, by largest remainder: each rounded on its own, 0.4, 99.2 and
+// 0.4% read "0%, 99% and 0%", and three thirds "33%" each, a split
+// of 99% (50, 48 and 3% on the demo's AUC, 101%). The percents left over
+// after rounding each down go to the largest remainders, an earlier
+// share first on a tie, so that the same shares always print the same.
+func sharePercents(shares ...float64) []int {
+	out := make([]int, len(shares))
+	rem := make([]float64, len(shares))
+	total, sum := 0.0, 0
+	for i, v := range shares {
+		x := 100 * v
+		total += x
+		out[i] = int(math.Floor(x))
+		rem[i] = x - float64(out[i])
+		sum += out[i]
+	}
+	idx := make([]int, len(shares))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return rem[idx[a]] > rem[idx[b]] })
+	for k := 0; k < int(math.Round(total))-sum && k < len(idx); k++ {
+		out[idx[k]]++
+	}
+	return out
 }

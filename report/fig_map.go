@@ -1017,7 +1017,10 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		}
 	}
 	if left > 0 {
-		c += fmt.Sprintf(" %d more panels (%s) do not fit on the page; extents.gpkg holds every extent's outline.", left, leftTitles(all, left))
+		// "1 more panel (X) does not fit" ("1 more panels ... do not" was
+		// written for one).
+		c += fmt.Sprintf(" %d more panel%s (%s) %s not fit on the page; extents.gpkg holds every extent's outline.",
+			left, Plural(left), leftTitles(all, left), map[bool]string{true: "does", false: "do"}[left == 1])
 	}
 	if r.Grid.Geographic {
 		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))

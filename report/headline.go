@@ -96,11 +96,11 @@ func verdictPhrase(mv *ModelVerdict) string {
 	d := mv.Diffs[mv.Largest]
 	tol := mv.Tolerance
 	if d.Method == "exact" {
-		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedVs(d.Diff, tol, -tol), d.Extent)
+		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedSmall(d.Diff, tol, -tol), d.Extent)
 	}
 	if d.notJudged() {
 		// A description: no interval is quoted for a difference not judged.
-		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent, d.why())
+		return fmt.Sprintf("%s (largest difference from %s %s on %s, not judged, %s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent, d.why())
 	}
 	if mv.Verdict == JudgementRobust && d.Diff == 0 {
 		// The largest difference is 0, so every one is: naming one
@@ -108,8 +108,8 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// says "every one is 0").
 		return fmt.Sprintf("%s (every difference from %s is 0)", mv.Verdict, mv.Base)
 	}
-	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signed3(d.Diff), d.Extent,
-		signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol), undeterminedWhy(mv, d))
+	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
+		signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), undeterminedWhy(mv, d))
 }
 
 // undeterminedWhy says, after the largest difference d of an undetermined
@@ -146,13 +146,28 @@ func rankingClause(rk ModelRanking) string {
 		return fmt.Sprintf("%s and %s score the same on %s", rk.Model, rk.Other, allExtents(n))
 	}
 	if better == 0 {
-		return fmt.Sprintf("%s and %s differ beyond noise on none of %d %s", a, b, n, rk.extentsWord())
+		return fmt.Sprintf("%s and %s %s", a, b, differOnNone(n, rk.extentsWord()))
 	}
 	out := fmt.Sprintf("%s is better than %s beyond noise on %d of %d %s", a, b, better, n, rk.extentsWord())
 	if worse > 0 {
 		out += fmt.Sprintf(" and worse on %d", worse)
 	}
 	return out
+}
+
+// differOnNone says that two models differ beyond noise on none of the n
+// extents counted, word naming them after the count ("extents",
+// "extents compared"): "differ beyond noise on none of 9 extents", "on
+// neither of the 2 extents", and "do not differ beyond noise on the 1
+// extent" ("differ beyond noise on none of 1 extent" was written).
+func differOnNone(n int, word string) string {
+	switch n {
+	case 1:
+		return "do not differ beyond noise on the 1 " + word
+	case 2:
+		return "differ beyond noise on neither of the 2 " + word
+	}
+	return fmt.Sprintf("differ beyond noise on none of %d %s", n, word)
 }
 
 // extentsWord is "extents" (or "extent" for one) after the count of
@@ -279,7 +294,9 @@ func (s *Sensitivity) scoredNowhere() []string {
 // never the sums-of-squares split (a property of the chosen family).
 func headline(a *analysis, s *Sensitivity) string {
 	if len(s.ScoredExtents) == 0 {
-		return "No extent could be scored, so the scores cannot be compared across extents."
+		// "No model", not "no extent": a null may be scored on every
+		// extent while no model is (a constant model alone).
+		return "No model could be scored on any extent, so the scores cannot be compared across extents."
 	}
 	lo, hi := scoredAreaRange(a, s)
 	var b strings.Builder
@@ -353,13 +370,21 @@ func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi
 			continue
 		}
 		against = toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: mv.Tolerance})
-		below := ""
+		rng := fmt.Sprintf("ranged %s–%s", f3(sp.Min), f3(sp.Max))
 		if sp.Max < 0.5 {
 			// Worse than a random ranking everywhere (point estimates):
 			// the range alone leaves the reader to notice it.
-			below = " (below 0.5, the AUC of a random ranking, on every extent)"
+			rng += " (below 0.5, the AUC of a random ranking, on every extent)"
 		}
-		parts = append(parts, fmt.Sprintf("AUC of %s ranged %s–%s%s and is %s", m, f3(sp.Min), f3(sp.Max), below, verdictPhrase(mv)))
+		if f3(sp.Min) == f3(sp.Max) {
+			// "ranged 1.000–1.000" names a range the numbers do not have.
+			below := ""
+			if sp.Max < 0.5 {
+				below = "; below 0.5, the AUC of a random ranking"
+			}
+			rng = fmt.Sprintf("was %s on %s (to three decimals%s)", f3(sp.Min), allOfNoun(sp.N, "extent"), below)
+		}
+		parts = append(parts, fmt.Sprintf("AUC of %s %s and is %s", m, rng, verdictPhrase(mv)))
 	}
 	if len(parts) == 0 {
 		b.WriteString("no model has an AUC.")

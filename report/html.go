@@ -198,9 +198,12 @@ type pageView struct {
 	Verdicts []badge
 	// E lists the partial ROC's allowed omissions ("0.05 and 0.1"), ""
 	// without partial ROC; HasDistanceNull says whether the run scored
-	// the distance-only null. Both for the Terms section.
+	// the distance-only null (and so the sorting bias), HasUserNull
+	// whether it scored a null of the user's (--null). All for the Terms
+	// section, which names only what the page holds.
 	E               string
 	HasDistanceNull bool
+	HasUserNull     bool
 	// AboveNullSummary is nil without a null model.
 	AboveNullSummary *notedTable
 	// Warnings counts RunWarnings and AnalysisWarnings.
@@ -273,6 +276,7 @@ func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i i
 	v.E = fmtList(r.Settings.E, "")
 	for _, m := range r.Models {
 		v.HasDistanceNull = v.HasDistanceNull || (m.IsNull() && m.NullKind == NullDistance)
+		v.HasUserNull = v.HasUserNull || (m.IsNull() && m.NullKind != NullDistance)
 	}
 	for i, rf := range figs {
 		v.Figures = append(v.Figures, figureView{

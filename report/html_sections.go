@@ -58,7 +58,7 @@ type loneNotes struct {
 func loneExtentNotes(s *Sensitivity) *loneNotes {
 	switch len(s.ScoredExtents) {
 	case 0:
-		const none = "No extent could be scored, so there is nothing to compare"
+		const none = "No model could be scored on any extent, so there is nothing to compare"
 		return &loneNotes{
 			Differences:   none + ": no score has a difference from another extent.",
 			Spread:        none + ": no score has a spread across extents.",
@@ -261,6 +261,12 @@ func omittedTable(s *Sensitivity) htmlTable {
 	return table("tbl-omitted", []string{"model", "rule", "cut value", "test records missed", "test records", "share missed", "ids of the missed records"}, rows)
 }
 
+// pctCell is a table cell showing the whole percent p of share v, sorted
+// by v.
+func pctCell(p int, v float64) cell {
+	return cell{text: strconv.Itoa(p), num: 100 * v, isN: true, cls: "n"}
+}
+
 // decompositionSection is the sums-of-squares table and the order of the
 // models by AUC per extent; nil without decompositions.
 func decompositionSection(s *Sensitivity, label map[string]string) *decompositionView {
@@ -271,7 +277,9 @@ func decompositionSection(s *Sensitivity, label map[string]string) *decompositio
 	for _, d := range s.Decompositions {
 		row := []cell{tc(label[d.Metric]), ic(len(d.Extents))}
 		if d.Defined {
-			row = append(row, nc(100*d.ShareExtent, 0), nc(100*d.ShareModel, 0), nc(100*d.ShareResidual, 0))
+			// Whole percents that add up to 100, as the sentence gives them.
+			p := sharePercents(d.ShareExtent, d.ShareModel, d.ShareResidual)
+			row = append(row, pctCell(p[0], d.ShareExtent), pctCell(p[1], d.ShareModel), pctCell(p[2], d.ShareResidual))
 		} else {
 			row = append(row, dash, dash, dash)
 		}

@@ -229,7 +229,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 		// tolerances they use and the descriptions across extents were
 		// not made, and the methods must not say they were.
 		if len(s.ScoredExtents) == 0 {
-			b.WriteString(" No extent could be scored, so no score was compared or judged.\n\n")
+			b.WriteString(" No model could be scored on any extent, so no score was compared or judged.\n\n")
 			return
 		}
 		b.WriteString(" With one scored extent, no score could be compared across extents, so no score was judged robust or extent-sensitive.")
@@ -474,12 +474,31 @@ func Plural(n int) string {
 	return "s"
 }
 
-// allExtents is "all n extents", or "the 1 extent" when n is 1.
-func allExtents(n int) string {
-	if n == 1 {
-		return "the 1 extent"
+// rangeOver says the range lo–hi of a score over (prep: "over",
+// "across") n extents: "ranged 0.704–0.893 over 13 extents", or "was
+// 1.000 on all 10 extents to three decimals" when both ends print alike
+// ("ranged 1.000–1.000" was written).
+func rangeOver(lo, hi float64, prep string, n int) string {
+	if f3(lo) == f3(hi) {
+		return fmt.Sprintf("was %s on %s to three decimals", f3(lo), allOfNoun(n, "extent"))
 	}
-	return fmt.Sprintf("all %d extents", n)
+	return fmt.Sprintf("ranged %s–%s %s %d extent%s", f3(lo), f3(hi), prep, n, Plural(n))
+}
+
+// allExtents is "all n extents", "both extents" when n is 2, or "the 1
+// extent" when n is 1.
+func allExtents(n int) string { return allOfNoun(n, "extent") }
+
+// allOfNoun names every one of n things called noun: "all 13 extents",
+// "both models" for 2 ("all 2 extents" was written), "the 1 extent" for 1.
+func allOfNoun(n int, noun string) string {
+	switch n {
+	case 1:
+		return "the 1 " + noun
+	case 2:
+		return "both " + noun + "s"
+	}
+	return fmt.Sprintf("all %d %ss", n, noun)
 }
 
 // references are the methods cited in methods.md.
@@ -517,8 +536,7 @@ func resultNumbers(r *Results) string {
 		if mv.BaseDefined {
 			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
-		t := fmt.Sprintf("AUC of %s ranged %s–%s over %d extent%s (%s) and was %s", m, f3(sp.Min), f3(sp.Max), sp.N, Plural(sp.N),
-			onBase, verdictPhrase(mv))
+		t := fmt.Sprintf("AUC of %s %s (%s) and was %s", m, rangeOver(sp.Min, sp.Max, "over", sp.N), onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""
 			if sc := findScore(r, m, sp.Extents[0]); sc != nil {
@@ -544,9 +562,17 @@ func resultNumbers(r *Results) string {
 			out += " " + methodsRankingText(rk)
 		}
 	}
-	if s.Independence.Defined {
+	if ind := s.Independence; ind.Defined && ind.N == 1 {
+		// One test record: no median and no share ("Test records lay a
+		// median 40.1 km ...; 0% lay within" was written).
+		within := "beyond"
+		if ind.NearCount == 1 {
+			within = "within"
+		}
+		out += fmt.Sprintf(" The one test record lay %s km from the nearest training record, %s %g cell widths.", trimFloat(ind.Min, 3), within, NearCells)
+	} else if ind.Defined {
 		out += fmt.Sprintf(" Test records lay a median %s km from the nearest training record; %s lay within %g cell widths.",
-			trimFloat(s.Independence.Median, 3), pctVs(s.Independence.NearShare, NearShareWarn), NearCells)
+			trimFloat(ind.Median, 3), pctVs(ind.NearShare, NearShareWarn), NearCells)
 	}
 	out += nullSentences(r)
 	return strings.TrimSpace(out)
@@ -609,7 +635,8 @@ func seText(sc *Score) string {
 	if sc == nil || sc.TestPoints < 2 {
 		return "no SE with fewer than two test records"
 	}
-	return fmt.Sprintf("SE %s from the test records", f3(sc.AUCSE))
+	// smallPositive: an SE of 0.0001 is not "0.000", no uncertainty.
+	return fmt.Sprintf("SE %s from the test records", smallPositive(sc.AUCSE))
 }
 
 // fmtP formats a p-value for a table cell: "< 0.001" or "0.042".
@@ -752,7 +779,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 // judge.
 func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	n := len(s.ScoredExtents)
-	var robust, sensitive, undetermined []string
+	var robust, sensitive, sensitiveAll, undetermined []string
 	for _, v := range s.Verdicts {
 		if v.Metric == MetricKeyBoyce {
 			continue // described, not judged: said with the tolerances
@@ -763,10 +790,12 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 				label = metricPhrase(m) // no comma inside a list
 			}
 		}
-		switch v.Verdict {
-		case JudgementRobust:
+		switch {
+		case v.Verdict == JudgementRobust:
 			robust = append(robust, label)
-		case JudgementSensitive:
+		case v.Verdict == JudgementSensitive && s.sensitiveForEvery(v.Metric):
+			sensitiveAll = append(sensitiveAll, label)
+		case v.Verdict == JudgementSensitive:
 			sensitive = append(sensitive, label)
 		default:
 			undetermined = append(undetermined, label)
@@ -775,7 +804,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	if n == 1 {
 		// Nothing to compare: the verdicts are undetermined for want of a
 		// second extent, not of test records.
-		robust, sensitive, undetermined = nil, nil, nil
+		robust, sensitive, sensitiveAll, undetermined = nil, nil, nil, nil
 		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
 	// With one model, "for at least one model" and "for every model"
@@ -783,6 +812,11 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	some, every := "for at least one model", "for every model"
 	if len(s.ModelNames) == 1 {
 		some, every = "for "+s.ModelNames[0], "for "+s.ModelNames[0]
+	}
+	if len(sensitiveAll) > 0 {
+		// Every model: "for at least one model" would say less than
+		// the verdicts (the demo's AUC, extent-sensitive for both).
+		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitiveAll)), every)
 	}
 	if len(sensitive) > 0 {
 		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
@@ -805,6 +839,22 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		}
 		fmt.Fprintf(b, "For %s %s (%s). ", joinList(undetermined), who, why)
 	}
+}
+
+// sensitiveForEvery tells whether metric is extent-sensitive for every
+// model of s (each model's own verdict).
+func (s *Sensitivity) sensitiveForEvery(metric string) bool {
+	n := 0
+	for _, mv := range s.ModelVerdicts {
+		if mv.Metric != metric {
+			continue
+		}
+		if mv.Verdict != JudgementSensitive {
+			return false
+		}
+		n++
+	}
+	return n > 0 && n == len(s.ModelNames)
 }
 
 // fewResamples tells whether some difference from the base extent was
@@ -944,7 +994,7 @@ func reviewerNullText(s *Sensitivity) string {
 			ns = append(ns, n)
 		}
 		// The number is the difference from the null, not the AUC.
-		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signed3(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		part := fmt.Sprintf("%s (difference %s, 95%% interval %s to %s)", an.Model, signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
 		switch {
 		case an.BaseReading == ReadingTooFew:
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, Plural(g.CommonPoints)))

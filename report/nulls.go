@@ -161,7 +161,7 @@ func nullSentences(r *Results) string {
 		if k == 1 {
 			fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC was %s on its one extent", what, f3(lo))
 		} else {
-			fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC ranged %s–%s across %d extents", what, f3(lo), f3(hi), k)
+			fmt.Fprintf(&b, " %s was scored like the models on the same extents and test records; its AUC %s", what, rangeOver(lo, hi, "across", k))
 		}
 		if v, ok := auc(n.Name, vocab.BaseID); ok {
 			if k == 1 {
@@ -176,7 +176,8 @@ func nullSentences(r *Results) string {
 				}
 			}
 			if len(ms) > 0 {
-				fmt.Fprintf(&b, " (models: %s)", strings.Join(ms, ", "))
+				// "(model: m 0.859)" for one ("(models: m 0.859)" was written).
+				fmt.Fprintf(&b, " (model%s: %s)", Plural(len(ms)), strings.Join(ms, ", "))
 			}
 		}
 		b.WriteString(".")
@@ -195,7 +196,7 @@ func nullSentences(r *Results) string {
 	if k == 1 {
 		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) was %s on the one extent where it is defined.", f3(lo))
 	} else if k > 0 {
-		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) ranged %s–%s across %d extents.", f3(lo), f3(hi), k)
+		fmt.Fprintf(&b, " The spatial sorting bias (mean distance from test to nearest training record over the area-weighted mean distance from the extent's cells; Hijmans 2012) %s.", rangeOver(lo, hi, "across", k))
 	}
 	return b.String()
 }

@@ -1,9 +1,13 @@
 package report
 
 import (
+	"encoding/json"
 	"fmt"
+	"strconv"
 	"strings"
 	"testing"
+
+	"areasweep/extent/vocab"
 )
 
 // The tests in this file drive the sentence writers with the numbers of
@@ -537,7 +541,7 @@ func TestAnalysisNotesNothingToCompare(t *testing.T) {
 	// No extent scored: the notes' words, from the writer itself.
 	none := loneExtentNotes(&Sensitivity{})
 	for _, n := range []string{none.Differences, none.Spread, none.Decomposition} {
-		checkWords(t, "note", n, []string{"No extent could be scored, so there is nothing to compare"}, nil)
+		checkWords(t, "note", n, []string{"No model could be scored on any extent, so there is nothing to compare"}, nil)
 	}
 	if loneExtentNotes(&Sensitivity{ScoredExtents: []string{"base", "hull"}}) != nil {
 		t.Error("two scored extents given the notes of one")
@@ -640,5 +644,393 @@ func TestWithinBracket(t *testing.T) {
 	}
 	if n == 0 {
 		t.Error("the sample has no verdict on the AUC with cells unweighted: the check above saw none")
+	}
+}
+
+// TestSharePercentsAddUp: the split of a sum of squares into extent,
+// model and non-additive parts prints whole percents that add up to 100,
+// in the sentence and in the table ("extent 50%, model 48% and
+// non-additive 3%" was written for shares 0.496, 0.477 and 0.027, and
+// "33%" three times for thirds); two models are "both models" ("scored
+// for all 2 models" was written). Expected percents worked by hand:
+// largest remainder, an earlier share first on a tie.
+func TestSharePercentsAddUp(t *testing.T) {
+	cases := []struct {
+		name   string
+		shares [3]float64
+		want   string
+		models int
+	}{
+		{"demo-like", [3]float64{0.496, 0.477, 0.027}, "for both models, the sum of squares of AUC splits into extent 49%, model 48% and non-additive 3%;", 2},
+		{"thirds", [3]float64{1.0 / 3, 1.0 / 3, 1.0 / 3}, "for all 3 models, the sum of squares of AUC splits into extent 34%, model 33% and non-additive 33%;", 3},
+		{"tiny ends", [3]float64{0.004, 0.992, 0.004}, "splits into extent 1%, model 99% and non-additive 0%;", 2},
+		{"exact", [3]float64{0.25, 0.5, 0.25}, "splits into extent 25%, model 50% and non-additive 25%;", 2},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			models := []string{"a", "b", "c"}[:c.models]
+			d := &Decomposition{Metric: "auc", Models: models, Extents: []string{"e1", "e2", "e3"}, Defined: true,
+				ShareExtent: c.shares[0], ShareModel: c.shares[1], ShareResidual: c.shares[2]}
+			got := decompositionSentence(MetricInfo{Key: "auc", Label: "AUC"}, d)
+			checkWords(t, "decomposition", got, []string{c.want}, []string{"all 2 models"})
+			v := decompositionSection(&Sensitivity{Decompositions: []Decomposition{*d}}, map[string]string{"auc": "AUC"})
+			sum := 0
+			for _, cl := range v.Table.Rows[0][2:5] {
+				n, err := strconv.Atoi(cl.text)
+				if err != nil {
+					t.Fatalf("table cell %q: %v", cl.text, err)
+				}
+				sum += n
+			}
+			if sum != 100 {
+				t.Errorf("table row %v adds up to %d%%, not 100", v.Table.Rows[0][2:5], sum)
+			}
+		})
+	}
+}
+
+// TestFewExtentsQuantifiers: model comparisons counted over one or two
+// extents say so in words that fit the count: "do not differ beyond noise
+// on the 1 extent", "on neither of the 2 extents", "score the same on both
+// extents" ("differ beyond noise on none of 1 extent" and "on all 2
+// extents" were written).
+func TestFewExtentsQuantifiers(t *testing.T) {
+	within := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Diff: 0.01, Low: -0.02, High: 0.04, Position: "inside"}
+	}
+	zero := func(ext string) ExtentDifference {
+		return ExtentDifference{Extent: ext, Defined: true, Position: "inside"}
+	}
+	cases := []struct {
+		name          string
+		rk            ModelRanking
+		want, notWant string
+	}{
+		{"one extent", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 1, WithinNoise: 1, Diffs: []ExtentDifference{within("base")}},
+			"a and b do not differ beyond noise on the 1 extent", "none of 1"},
+		{"two extents", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 2, WithinNoise: 2, Diffs: []ExtentDifference{within("base"), within("x")}},
+			"a and b differ beyond noise on neither of the 2 extents", "none of 2"},
+		{"three extents", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 3, WithinNoise: 3, Diffs: []ExtentDifference{within("base"), within("x"), within("y")}},
+			"a and b differ beyond noise on none of 3 extents", "neither"},
+		{"two identical", ModelRanking{Metric: "auc", Model: "a", Other: "b", Extents: 2, WithinNoise: 2, Diffs: []ExtentDifference{zero("base"), zero("x")}},
+			"a and b score the same on both extents", "all 2"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "ranking clause", rankingClause(c.rk), []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// TestAgainstTheNulls: the headline's clauses on the nulls open with
+// "Against the nulls:" when they name two nulls or more, and with
+// "Against the null:" when they name one, whatever the number of models
+// ("Against the null:" before clauses on effort and distance_null was
+// written).
+func TestAgainstTheNulls(t *testing.T) {
+	gap := func(model, null string) AboveNull {
+		return AboveNull{Metric: "auc", Model: model, Null: null, BaseExtent: "base", BaseReading: ReadingBelow, Defined: 1, Below: 1,
+			Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, Method: "placements", Diff: -0.3, Low: -0.4, High: -0.2, Reading: ReadingBelow}}}
+	}
+	cases := []struct {
+		name          string
+		ans           []AboveNull
+		want, notWant string
+	}{
+		{"two nulls", []AboveNull{gap("m", "effort"), gap("m", "distance_null")}, " Against the nulls: m is below effort", "Against the null:"},
+		{"one null, two models", []AboveNull{gap("m", "distance_null"), gap("k", "distance_null")}, " Against the null: m is below distance_null", "Against the nulls"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			checkWords(t, "headline", aboveNullHeadline(&Sensitivity{AboveNull: c.ans}), []string{c.want}, []string{c.notWant})
+		})
+	}
+}
+
+// TestNullSentenceModelsCounted: the methods' sentence on a null lists
+// the models' AUC on the base extent under "model:" when there is one
+// ("(models: md 0.859)" was written) and "models:" when there are more.
+func TestNullSentenceModelsCounted(t *testing.T) {
+	for _, c := range []struct {
+		models        []string
+		want, notWant string
+	}{
+		{[]string{"md"}, "was 0.885 on the base extent (model: md 0.859).", "models:"},
+		{[]string{"md", "ew"}, "was 0.885 on the base extent (models: md 0.859, ew 0.859).", "model:"},
+	} {
+		r := &Results{Extents: []Extent{{ID: "base", Status: vocab.StatusOK}, {ID: "x", Status: vocab.StatusOK}}}
+		for _, m := range c.models {
+			r.Models = append(r.Models, Model{Name: m, Role: RoleModel})
+			r.Scores = append(r.Scores, Score{Model: m, Extent: "base", Scored: true, AUC: 0.859})
+		}
+		r.Models = append(r.Models, Model{Name: "effort", Role: RoleNull, NullKind: NullRaster})
+		r.Scores = append(r.Scores, Score{Model: "effort", Extent: "base", Scored: true, AUC: 0.885}, Score{Model: "effort", Extent: "x", Scored: true, AUC: 0.9})
+		checkWords(t, "null sentence", nullSentences(r), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestChainSlopeNotPrintedAsZero: a chain's slope too small for three
+// decimals is printed with the digits that tell it from 0 ("AUC changes
+// by +0.000 per doubling" was written beside AUCs going from 0.604 to
+// 0.605); a slope of exactly 0 stays "+0.000".
+func TestChainSlopeNotPrintedAsZero(t *testing.T) {
+	for _, c := range []struct {
+		slope float64
+		want  string
+	}{
+		{0.0004, "changes by +0.0004 per doubling"},
+		{-0.0003, "changes by -0.0003 per doubling"},
+		{0.0123, "changes by +0.012 per doubling"},
+		{0, "changes by +0.000 per doubling"},
+	} {
+		cs := ChainSummary{Chain: "points", Model: "m", Members: []string{"a", "b", "c"}, MemberAreasKm2: []float64{10, 20, 40},
+			StartAUC: 0.604, EndAUC: 0.605, Change: 0.001, SharesDefined: true, Largest: 0,
+			Slope: Slope{Defined: true, PerDoubling: c.slope, N: 3},
+			Steps: []ChainStep{{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.604, AUCOuter: 0.605, AUCRing: 0.606, AUCRingDefined: true, Change: 0.001, Share: 1}}}
+		checkWords(t, "chain", chainSentence(&cs, "model"), []string{c.want}, nil)
+	}
+}
+
+// TestTinyDifferencesNotPrintedAsZero: a difference, interval bound, SE or
+// x_E too small for three decimals prints the digits that tell it from 0,
+// with its own sign ("largest difference from base +0.000 on hull, 95%
+// interval +0.000 to +0.000" was written for -0.0003, a model ranking
+// every test point above nearly every cell); below 5e-7 (our cut-off)
+// it stays "+0.000". Expected strings worked by hand.
+func TestTinyDifferencesNotPrintedAsZero(t *testing.T) {
+	d := ExtentDifference{Extent: "hull", Defined: true, Diff: -0.0003, Low: -0.00034, High: -0.00026, Method: "placements", Position: "inside"}
+	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Diffs: []ExtentDifference{d}, Largest: 0, BaseDefined: true}
+	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"robust (largest difference from base -0.0003 on hull, 95% interval -0.0003 to -0.0003)"}, []string{"+0.000"})
+	checkWords(t, "difference", differenceText(d, 0.02), []string{"-0.0003 on hull (95% interval -0.0003 to -0.0003)"}, []string{"0.000 "})
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{-0.0003, "-0.0003"}, {0.00002, "+0.00002"}, {0.0123, "+0.012"}, {0, "+0.000"}, {1e-9, "+0.000"}, {-1e-9, "+0.000"},
+	} {
+		if got := signedSmall(c.v); got != c.want {
+			t.Errorf("signedSmall(%g) = %q, want %q", c.v, got, c.want)
+		}
+	}
+	// A tolerance still gets the digits that tell a bound from it.
+	if got := signedSmall(0.0200001, 0.02, -0.02); got != "+0.0200001" {
+		t.Errorf("signedSmall near the tolerance = %q", got)
+	}
+	if got := seText(&Score{TestPoints: 15, AUCSE: 0.00012}); got != "SE 0.0001 from the test records" {
+		t.Errorf("seText = %q", got)
+	}
+}
+
+// TestRangeOfOneValue: a score that prints alike on every extent is said
+// to be that value on every extent, not to range from it to itself
+// ("AUC of good ranged 1.000–1.000" was written); a real range reads as
+// before.
+func TestRangeOfOneValue(t *testing.T) {
+	for _, c := range []struct {
+		lo, hi float64
+		n      int
+		want   string
+	}{
+		{0.99971, 0.99996, 10, "was 1.000 on all 10 extents to three decimals"},
+		{0.5, 0.5004, 2, "was 0.500 on both extents to three decimals"},
+		{0.704, 0.893, 13, "ranged 0.704–0.893 over 13 extents"},
+	} {
+		if got := rangeOver(c.lo, c.hi, "over", c.n); got != c.want {
+			t.Errorf("rangeOver(%g, %g, %d) = %q, want %q", c.lo, c.hi, c.n, got, c.want)
+		}
+	}
+}
+
+// TestGapSameAtBothEnds: a model-minus-null gap that prints alike on the
+// smallest and the largest extent is said to be that on both, not to
+// move ("the gap moves from +0.100 on a to +0.100 on b" was written).
+func TestGapSameAtBothEnds(t *testing.T) {
+	got := gapSpan("moves from", 0.1002, "a", "(the smallest extent)", 0.0998, "b", "(the largest)")
+	if want := "is +0.100 on both a (the smallest extent) and b (the largest)"; got != want {
+		t.Errorf("gapSpan = %q, want %q", got, want)
+	}
+	got = gapSpan("runs from", 0.042, "a", "(the smallest extent)", -0.055, "b", "(the largest)")
+	if want := "runs from +0.042 on a (the smallest extent) to -0.055 on b (the largest)"; got != want {
+		t.Errorf("gapSpan = %q, want %q", got, want)
+	}
+}
+
+// TestChainChangeBelowDecimals: a nested chain whose AUC prints alike at
+// both ends gives no share of its change ("goes from 0.440 to 0.440; 242%
+// of the gain comes from the ring ..." was written, a gain the reader
+// cannot see); it says the change, with its digits.
+func TestChainChangeBelowDecimals(t *testing.T) {
+	cs := ChainSummary{Chain: "region", Model: "n4", Members: []string{"a", "b", "c"}, MemberAreasKm2: []float64{174000, 300000, 712000},
+		StartAUC: 0.4401, EndAUC: 0.4403, Change: 0.0002, SharesDefined: true, Largest: 0,
+		Steps: []ChainStep{
+			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 126000, AUCInner: 0.4401, AUCOuter: 0.4406, AUCRing: 0.441, AUCRingDefined: true, Change: 0.0005, Share: 2.5},
+			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 412000, AUCInner: 0.4406, AUCOuter: 0.4403, AUCRing: 0.4401, AUCRingDefined: true, Change: -0.0003, Share: -1.5},
+		}}
+	checkWords(t, "chain", chainSentence(&cs, "model"),
+		[]string{"goes from 0.440 (a, 174,000 km²) to 0.440 (c, 712,000 km²): it changes by +0.0002 in all, which the three decimals do not show, so no share of the change is given"},
+		[]string{"of the gain", "250%"})
+	// Ends 0.4396 and 0.4404 both print 0.440; their change is +0.0008,
+	// not "+0.001" (worked by hand).
+	cs.StartAUC, cs.EndAUC, cs.Change = 0.4396, 0.4404, 0.0008
+	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.0008 in all"}, []string{"+0.001"})
+	cs.StartAUC, cs.EndAUC, cs.Change = 0.44, 0.44002, 0.00002
+	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.00002 in all"}, nil)
+}
+
+// TestHeadlineOneValue: the headline says a model's AUC is one value on
+// every extent when its ends print alike (AUCs set by hand to 0.9996 +
+// k 1e-5 on the sample's extents), not "ranged 1.000–1.000"; the
+// methods' results say the same.
+func TestHeadlineOneValue(t *testing.T) {
+	r := loadSample(t)
+	k := 0
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" && r.Scores[i].Scored {
+			r.Scores[i].AUC = 0.9996 + float64(k)*1e-5
+			k++
+		}
+	}
+	s := analyzed(t, r)
+	sp := s.findSpread("auc", "broad")
+	want := fmt.Sprintf("AUC of broad was 1.000 on all %d extents (to three decimals) and is", sp.N)
+	checkWords(t, "headline", s.Headline, []string{want}, []string{"ranged 1.000–1.000"})
+	checkWords(t, "methods", methodsText(r), []string{fmt.Sprintf("AUC of broad was 1.000 on all %d extents to three decimals (", sp.N)}, []string{"ranged 1.000–1.000"})
+}
+
+// TestReplySensitiveForEvery: the reply says a score moved beyond the
+// tolerance "for every model" when each model's verdict is
+// extent-sensitive, and "for at least one model" when only some are
+// ("AUC ... moved with the extent by more than the tolerance for at least
+// one model" was written when it did for both of the demo's models).
+func TestReplySensitiveForEvery(t *testing.T) {
+	s := &Sensitivity{ModelNames: []string{"a", "b"}, ScoredExtents: []string{"base", "x", "y"},
+		Metrics:  []MetricInfo{{Key: "auc", Label: "AUC"}, {Key: "pa", Label: "predicted area"}},
+		Verdicts: []Verdict{{Metric: "auc", Label: "AUC", Verdict: JudgementSensitive}, {Metric: "pa", Label: "predicted area", Verdict: JudgementSensitive}},
+		ModelVerdicts: []ModelVerdict{
+			{Metric: "auc", Model: "a", Verdict: JudgementSensitive}, {Metric: "auc", Model: "b", Verdict: JudgementSensitive},
+			{Metric: "pa", Model: "a", Verdict: JudgementSensitive}, {Metric: "pa", Model: "b", Verdict: JudgementRobust},
+		}}
+	var b strings.Builder
+	reviewerVerdicts(&b, s)
+	checkWords(t, "reply", b.String(),
+		[]string{"AUC moved with the extent by more than the tolerance for every model.", "Predicted area moved with the extent by more than the tolerance for at least one model."},
+		[]string{"AUC and predicted area moved"})
+}
+
+// TestTinyNullGapNotPrintedAsZero: a model that nearly copies the null
+// has its gap printed with the digits and sign that tell it from 0 ("R
+// is not above distance_null beyond noise on base (AUC difference
+// +0.000, 95% interval -0.0002 to +0.00003)" was written for -0.0001).
+func TestTinyNullGapNotPrintedAsZero(t *testing.T) {
+	an := AboveNull{Metric: "auc", Model: "R", Null: "distance_null", BaseExtent: "base", BaseReading: ReadingNotAbove, Defined: 2, NotAbove: 2,
+		SmallestExtent: "hull", LargestExtent: "base",
+		Gaps: []NullGap{
+			{Extent: "base", AreaKm2: 267000, Defined: true, CommonPoints: 39, Method: "placements", ModelValue: 0.8593, NullValue: 0.8594, Diff: -0.0001, Low: -0.0002, High: 0.00003, Reading: ReadingNotAbove},
+			{Extent: "hull", AreaKm2: 50200, Defined: true, CommonPoints: 33, Method: "placements", ModelValue: 0.5923, NullValue: 0.5923, Diff: 0.00004, Low: -0.0001, High: 0.0002, Reading: ReadingNotAbove},
+		}}
+	head := aboveNullHeadline(&Sensitivity{AboveNull: []AboveNull{an}})
+	checkWords(t, "headline", head, []string{"R is not above distance_null beyond noise on base (AUC difference -0.0001, 95% interval -0.0002 to +0.00003)",
+		"the gap moves from +0.00004 on hull (the smallest extent) to -0.0001 on base (the largest)"}, []string{"+0.000 "})
+	got := aboveNullSentence(&Results{}, MetricInfo{Key: "auc", Label: "AUC", Kind: MetricAUC}, &an)
+	checkWords(t, "sentence", got, []string{"the difference -0.0001 (0.859 against 0.859) has a 95% interval -0.0002 to +0.00003 that includes 0",
+		"the gap runs from +0.00004 on hull"}, []string{"+0.000 "})
+}
+
+// TestTermsNameWhatThePageHolds: the Terms section names the spatial
+// sorting bias among the descriptions only when the run scored the
+// distance-only null, which computes it (--no-distance-null skips both),
+// and defines a null of the user's when the run has one.
+func TestTermsNameWhatThePageHolds(t *testing.T) {
+	page := func(r *Results) string {
+		t.Helper()
+		b, err := htmlPage(r, nil, "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	plain := analyzedSample(t)
+	checkWords(t, "page without nulls", page(plain),
+		[]string{"the sums of squares of the models × extents table and Kendall&#39;s W describe this family"},
+		[]string{"spatial sorting bias describe", "<dt>null</dt>", "<dt>distance-only null</dt>"})
+	r := withNull(t)
+	analyzed(t, r)
+	checkWords(t, "page with the distance-only null", page(r),
+		[]string{"Kendall&#39;s W and the spatial sorting bias describe this family", "<dt>distance-only null</dt>"}, []string{"<dt>null</dt>"})
+	for i := range r.Models {
+		if r.Models[i].IsNull() {
+			r.Models[i].NullKind = NullRaster
+		}
+	}
+	checkWords(t, "page with a null of the user's", page(r),
+		[]string{"<dt>null</dt><dd>A raster marked as a null (--null)", "table and Kendall&#39;s W describe"}, []string{"<dt>distance-only null</dt>"})
+}
+
+// TestOneTestRecordDistance: the methods' results give the one test
+// record's distance as such, not as a median with a share ("Test records
+// lay a median 40.1 km from the nearest training record; 0% lay within 3
+// cell widths" was written for a run with one test record).
+func TestOneTestRecordDistance(t *testing.T) {
+	for _, c := range []struct {
+		ind           Independence
+		want, notWant string
+	}{
+		{Independence{Defined: true, N: 1, Min: 40.1, Median: 40.1, Max: 40.1}, "The one test record lay 40.1 km from the nearest training record, beyond 3 cell widths.", "median"},
+		{Independence{Defined: true, N: 1, Min: 2.5, Median: 2.5, Max: 2.5, NearCount: 1, NearShare: 1}, "The one test record lay 2.5 km from the nearest training record, within 3 cell widths.", "median"},
+		{Independence{Defined: true, N: 39, Min: 1, Median: 14.7, Max: 85, NearCount: 16, NearShare: 16.0 / 39}, "Test records lay a median 14.7 km from the nearest training record; 41% lay within 3 cell widths.", "one test record"},
+	} {
+		r := &Results{Sensitivity: &Sensitivity{Independence: c.ind}}
+		checkWords(t, "results", resultNumbers(r), []string{c.want}, []string{c.notWant})
+	}
+}
+
+// TestMapCaptionPanelsLeft: the maps' caption counts the panels that do
+// not fit in words that agree with the count ("1 more panels (...) do not
+// fit" would be written for one).
+func TestMapCaptionPanelsLeft(t *testing.T) {
+	r := analyzedSample(t)
+	groups := mapGroups(r)
+	if len(groups) < 3 {
+		t.Fatalf("the sample has %d map panels, the test needs 3", len(groups))
+	}
+	model := r.Models[0].Name
+	one := mapCaption(r, model, groups[:len(groups)-1], groups, mapMarks{}, 1)
+	checkWords(t, "caption", one, []string{" 1 more panel (" + groups[len(groups)-1].title + ") does not fit on the page;"}, []string{"panels", "do not fit"})
+	two := mapCaption(r, model, groups[:len(groups)-2], groups, mapMarks{}, 2)
+	checkWords(t, "caption", two, []string{" 2 more panels (", ") do not fit on the page;"}, nil)
+}
+
+// TestExplorerOpensOnTheReference: the extent explorer opens on the
+// extent every difference is taken from: the base extent, or the
+// reference extent standing in for an unscored base (it opened on the
+// base, where it could only say "Model good is not scored on base").
+func TestExplorerOpensOnTheReference(t *testing.T) {
+	open := func(r *Results) string {
+		t.Helper()
+		b, err := teachData(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var pl teachPayload
+		if err := json.Unmarshal(b, &pl); err != nil {
+			t.Fatal(err)
+		}
+		return pl.Default
+	}
+	r := analyzedSample(t)
+	if got := open(r); got != vocab.BaseID {
+		t.Errorf("explorer opens on %q, want %q", got, vocab.BaseID)
+	}
+	for i := range r.Scores {
+		if r.Scores[i].Extent == vocab.BaseID {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+		}
+	}
+	s := analyzed(t, r)
+	if s.BaseExtent == vocab.BaseID || s.BaseExtent == "" {
+		t.Fatalf("reference extent %q", s.BaseExtent)
+	}
+	if got := open(r); got != s.BaseExtent {
+		t.Errorf("explorer opens on %q, want the reference extent %q", got, s.BaseExtent)
 	}
 }

@@ -566,7 +566,7 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 				t.Fatal(err)
 			}
 			s := r.Sensitivity
-			if len(s.ScoredExtents) != 0 || !strings.HasPrefix(s.Headline, "No extent") {
+			if len(s.ScoredExtents) != 0 || !strings.HasPrefix(s.Headline, "No model could be scored on any extent") {
 				t.Errorf("scored %v headline %q", s.ScoredExtents, s.Headline)
 			}
 			for _, mv := range s.ModelVerdicts {

@@ -239,6 +239,24 @@ func signedVs(v float64, refs ...float64) string {
 	return s
 }
 
+// signedSmall formats a difference v as signedVs does against the
+// cut-offs refs, and against 0 too: "the largest is +0.0002", not
+// "+0.000", which reads as no difference at all. A v within 5e-7 of 0
+// stays "+0.000": differences that small are the arithmetic's, not the
+// data's (our cut-off).
+func signedSmall(v float64, refs ...float64) string {
+	if math.Abs(v) < 5e-7 {
+		return signedVs(v, refs...)
+	}
+	return signedVs(v, append([]float64{0}, refs...)...)
+}
+
+// smallPositive formats a share v >= 0 with three decimals, or up to six
+// when three would print it as 0 (signedSmall without its sign).
+func smallPositive(v float64) string {
+	return strings.TrimPrefix(signedSmall(v), "+")
+}
+
 // signedDec formats v with a sign and dec decimals (no negative zero).
 func signedDec(v float64, dec int) string {
 	s := strconv.FormatFloat(v, 'f', dec, 64)

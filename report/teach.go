@@ -86,7 +86,14 @@ func teachData(r *Results) ([]byte, error) {
 	pl.Base, pl.BaseWord, pl.Bootstrap = s.BaseExtent, referenceWord(s), bootstrapName(r.Settings)
 	for _, e := range rocExtents(r) {
 		pl.Extents = append(pl.Extents, teachExtent{ID: e.ID, Kind: e.Kind, Params: e.Params, AreaKm2: e.AreaKm2, Area: fmtArea(e.AreaKm2)})
-		if e.ID == vocab.BaseID {
+		if e.ID == vocab.BaseID && pl.Default == "" {
+			pl.Default = e.ID
+		}
+		if e.ID == s.BaseExtent {
+			// The extent every difference is taken from, which is the
+			// base extent unless another stands in for it: the explorer
+			// opened on an unscored base ("Model m is not scored on
+			// base") when a reference extent stood in for it.
 			pl.Default = e.ID
 		}
 	}

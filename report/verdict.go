@@ -264,7 +264,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 	if exact {
 		within = "(exact: no test point moves it) lies within " + tol
 		if big.Diff != 0 {
-			largestWithin = fmt.Sprintf("the largest is %s on %s", signedVs(big.Diff, m.Tolerance, -m.Tolerance), big.Extent)
+			largestWithin = fmt.Sprintf("the largest is %s on %s", signedSmall(big.Diff, m.Tolerance, -m.Tolerance), big.Extent)
 		}
 	}
 	switch {
@@ -336,7 +336,7 @@ func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
 			}
 		}
 	}
-	largest := fmt.Sprintf("the largest is %s on %s", signed3(big.Diff), big.Extent)
+	largest := fmt.Sprintf("the largest is %s on %s", signedSmall(big.Diff), big.Extent)
 	if big.Diff == 0 {
 		largest = "every one is 0"
 	}
@@ -367,13 +367,16 @@ func toleranceText(m MetricInfo) string {
 // error; the bounds show on which side of ±tol they lie (signedVs).
 func differenceText(d ExtentDifference, tol float64) string {
 	if d.Method == "exact" {
-		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedVs(d.Diff, tol, -tol), d.Extent)
+		return fmt.Sprintf("%s on %s (exact: no test point moves it)", signedSmall(d.Diff, tol, -tol), d.Extent)
 	}
+	// signedSmall: a difference of 0.0002 and its interval read "+0.0002
+	// (95% interval +0.0001 to +0.0003)", not "+0.000 (95% interval
+	// +0.000 to +0.000)", which reads as no difference at all.
 	if d.notJudged() {
 		// A description only: its interval is no basis for inference.
-		return fmt.Sprintf("%s on %s, not judged (%s)", signed3(d.Diff), d.Extent, d.why())
+		return fmt.Sprintf("%s on %s, not judged (%s)", signedSmall(d.Diff), d.Extent, d.why())
 	}
-	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signed3(d.Diff), d.Extent, signedVs(d.Low, tol, -tol), signedVs(d.High, tol, -tol))
+	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signedSmall(d.Diff), d.Extent, signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol))
 }
 
 // undefinedText says where no difference from the base could be formed
@@ -547,7 +550,8 @@ func undefinedWhy(m MetricInfo, s *Score) string {
 			out := " (" + p.Reason
 			switch {
 			case p.DiscreteDefined:
-				out += fmt.Sprintf("; read at thresholds only, x_E = %s and the ratio is %s", f3(p.DiscreteXE), f3(p.DiscreteRatio))
+				// x_E of 0.0003 is "0.0003", not "0.000" (no area at all).
+				out += fmt.Sprintf("; read at thresholds only, x_E = %s and the ratio is %s", smallPositive(p.DiscreteXE), f3(p.DiscreteRatio))
 			case p.TiedAtCrossing > 0:
 				out += "; read at thresholds only, the threshold that keeps the tied test points keeps the whole area, so no ratio can be formed"
 			}
@@ -679,8 +683,8 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 			case r.Better == 0 && r.Worse == 0:
 				// "a is better than b on 0 of n" is true but reads as a
 				// finding.
-				r.Sentence = fmt.Sprintf("%s: %s and %s differ beyond noise on none of %d extent%s (paired differences, 95%% intervals).",
-					upperFirst(m.Label), ma, mb, r.Extents, Plural(r.Extents))
+				r.Sentence = fmt.Sprintf("%s: %s and %s %s (paired differences, 95%% intervals).",
+					upperFirst(m.Label), ma, mb, differOnNone(r.Extents, "extent"+Plural(r.Extents)))
 				r.Sentence += notCountedText(tooFew, tooFewB, m.minCommonPoints(PairedKindModel))
 			default:
 				// The model ahead first, as in the headline; the table

@@ -261,16 +261,20 @@ func TestNoExtentScoredReferenceWords(t *testing.T) {
 		t.Fatal("no AUC verdict of good")
 	}
 	checkWords(t, "verdict", mv.Sentence, []string{"AUC of good: not scored on any extent, so no difference can be formed."}, bad)
+	// "No model", not "No extent could be scored": a null may be scored
+	// on every extent while no model is (a constant model alone beside
+	// the distance-only null).
+	checkWords(t, "headline", s.Headline, []string{"No model could be scored on any extent, so the scores cannot be compared across extents."}, []string{"No extent could be scored"})
 	// Nothing scored: the methods say so rather than define verdicts and
 	// paired differences that were not made (TestMethodsOneExtentClaimsNoComparison).
-	checkWords(t, "methods", methodsText(r), []string{"No extent could be scored, so no score was compared or judged."}, append(bad, "were taken on the test records", "We call a score robust"))
+	checkWords(t, "methods", methodsText(r), []string{"No model could be scored on any extent, so no score was compared or judged."}, append(bad, "were taken on the test records", "We call a score robust"))
 	page, err := htmlPage(r, nil, "")
 	if err != nil {
 		t.Fatal(err)
 	}
 	// With nothing scored the note says there is nothing to compare
 	// rather than explain differences from base (TestAnalysisNotesNothingToCompare).
-	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>No extent could be scored, so there is nothing to compare: no score has a difference from another extent.</p>"},
+	checkWords(t, "page", string(page), []string{"<h3>Difference from the base extent</h3><p>No model could be scored on any extent, so there is nothing to compare: no score has a difference from another extent.</p>"},
 		append(bad, "minus the score on"))
 }
 

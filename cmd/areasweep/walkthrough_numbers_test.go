@@ -150,9 +150,10 @@ type wtResults struct {
 			} `json:"gaps"`
 		} `json:"above_null"`
 		Decompositions []struct {
-			Metric      string  `json:"metric"`
-			ShareExtent float64 `json:"share_extent"`
-			ShareModel  float64 `json:"share_model"`
+			Metric        string  `json:"metric"`
+			ShareExtent   float64 `json:"share_extent"`
+			ShareModel    float64 `json:"share_model"`
+			ShareResidual float64 `json:"share_residual"`
 		} `json:"decompositions"`
 		Chains []struct {
 			Chain   string   `json:"chain"`
@@ -234,6 +235,31 @@ func wtSigned(x float64) string { return wtMinus(fmt.Sprintf("%+.3f", x)) }
 func wt1(x float64) string      { return wtMinus(fmt.Sprintf("%.1f", x)) }
 func wtG(x float64) string      { return wtMinus(strconv.FormatFloat(x, 'g', -1, 64)) }
 func wtPct(x float64) string    { return fmt.Sprintf("%.0f%%", 100*x) }
+
+// wtSplit rounds shares adding up to 1 to whole percents adding up to
+// 100 by largest remainder (the rule the report states), written out
+// here apart from the report's own.
+func wtSplit(shares ...float64) []int {
+	out := make([]int, len(shares))
+	rem := make([]float64, len(shares))
+	left := 100
+	for i, v := range shares {
+		out[i] = int(math.Floor(100 * v))
+		rem[i] = 100*v - float64(out[i])
+		left -= out[i]
+	}
+	for ; left > 0; left-- {
+		best := 0
+		for i := range rem {
+			if rem[i] > rem[best] {
+				best = i
+			}
+		}
+		out[best]++
+		rem[best] = -1
+	}
+	return out
+}
 func wtComma(n int) string {
 	s := strconv.Itoa(n)
 	for i := len(s) - 3; i > 0; i -= 3 {
@@ -650,7 +676,10 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 	}
 	for _, d := range r.Sensitivity.Decompositions {
 		if d.Metric == "auc" {
-			frag(fmt.Sprintf("(extent %s, model %s here)", wtPct(d.ShareExtent), wtPct(d.ShareModel)))
+			// The report's whole percents add up to 100 (largest
+			// remainder), and so do the README's.
+			p := wtSplit(d.ShareExtent, d.ShareModel, d.ShareResidual)
+			frag(fmt.Sprintf("(extent %d%%, model %d%% here)", p[0], p[1]))
 		}
 	}
 	// Cautions.

@@ -118,6 +118,12 @@
 #     quoting them, and results.json's schema_version, 3 to 4 (the
 #     intervals' meaning changed); no position, verdict, ranking or
 #     reading changed, and every score is unchanged;
+#   - rewritten on branch h1 of 2026-12-04 (the sums-of-squares split is
+#     printed in whole percents that add up to 100, by largest remainder,
+#     and two models are "both models": the demo's AUC split reads
+#     "extent 50%, model 47% and non-additive 3%" instead of 50, 48 and
+#     3%; decomposition sentences under sensitivity only, every number
+#     and scores.csv unchanged);
 #   - rewritten when each partial ROC record took resample_size (the test
 #     points each resample of the published bootstrap draws; whether the
 #     report gives its interval and P now rests on it rather than on the

@@ -1029,10 +1029,15 @@ func checkProjected(recs []Record, c columns, perr func(int, string, error) erro
 	return nil
 }
 
-// allRecords phrases "all n records are" with the right number.
+// allRecords phrases "all n records are" with the right number: "the
+// only record is" for 1, "both records are" for 2 ("all 2 records are"
+// was written).
 func allRecords(n int) string {
-	if n == 1 {
+	switch n {
+	case 1:
 		return "the only record is"
+	case 2:
+		return "both records are"
 	}
 	return fmt.Sprintf("all %d records are", n)
 }

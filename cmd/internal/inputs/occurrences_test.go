@@ -219,7 +219,7 @@ func errCases() []errCase {
 		{name: "blank file", in: "\n  \n\r\n", is: ErrNoRecords, contains: []string{"file is empty"}},
 		{name: "bom only", in: bom, is: ErrNoRecords},
 		{name: "header only", in: "lon,lat,role\n\n", is: ErrNoRecords, contains: []string{"only a header", "one line per occurrence"}},
-		{name: "no test records", in: "lon,lat,role\n1,2,train\n3,4,training\n", is: ErrNoTest, field: "role", contains: []string{"all 2 records are train", "role test"}},
+		{name: "no test records", in: "lon,lat,role\n1,2,train\n3,4,training\n", is: ErrNoTest, field: "role", contains: []string{"both records are train", "role test"}},
 		{name: "no train records", in: "lon,lat,role\n1,2,test\n", is: ErrNoTrain, field: "role", contains: []string{"the only record is test", "role train"}},
 		{name: "latitude out of range", in: "lon,lat,role\n100,5,train\n10,95,test\n", geographic: true, is: ErrOutOfRange, line: 3, field: "lat", contains: []string{"95", "[-90, 90]", "occurrences-crs"}},
 		{name: "longitude out of range", in: "lon,lat,role\n10,5,train\n400,5,test\n", geographic: true, is: ErrOutOfRange, line: 3, field: "lon", contains: []string{"400", "[-180, 360]"}},
