@@ -267,11 +267,21 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 			largestWithin = fmt.Sprintf("the largest is %s on %s", signedSmall(big.Diff, m.Tolerance, -m.Tolerance), big.Extent)
 		}
 	}
+	// One other extent: its difference is named as the one there is,
+	// not as "every difference" and "the largest" of one.
+	one := len(mv.Diffs) == 1
 	switch {
+	case outside > 0 && one:
+		mv.Verdict = JudgementSensitive
+		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: its one difference from %s, %s, lies wholly beyond %s.",
+			name, a.base, differenceText(big, m.Tolerance), toleranceText(m))
 	case outside > 0:
 		mv.Verdict = JudgementSensitive
 		mv.Sentence = fmt.Sprintf("%s is extent-sensitive: on %d of %d extent%s the difference from %s lies wholly beyond %s; %s.%s%s",
 			name, outside, len(mv.Diffs), Plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
+	case len(mv.Undefined) == 0 && allInside(mv.Diffs) && one:
+		mv.Verdict = JudgementRobust
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: its one difference from %s, %s, lies within %s.", name, a.base, differenceText(big, m.Tolerance), tol)
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
 		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
@@ -339,6 +349,14 @@ func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
 	largest := fmt.Sprintf("the largest is %s on %s", signedSmall(big.Diff), big.Extent)
 	if big.Diff == 0 {
 		largest = "every one is 0"
+	}
+	if len(mv.Diffs) == 1 && big.Defined {
+		side := "within"
+		if beyond == 1 {
+			side = "beyond"
+		}
+		return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): its one difference from %s, %s on %s, lies %s ±%s.",
+			name, BoyceCoverage, base, signedSmall(big.Diff), big.Extent, side, fmtG(tol))
 	}
 	// "1 of 10 lies", "3 of 10 lie": the verb follows the count beyond.
 	lie := "lie"

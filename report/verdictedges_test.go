@@ -377,3 +377,49 @@ func TestOneResampleWords(t *testing.T) {
 	}
 	checkWords(t, "page", string(page), []string{"Other metrics: 1 full-size resample of the test points", "Resamples: 1 bootstrap draw of"}, bad)
 }
+
+// TestOneOtherExtentWords: a model scored on the base and on one other
+// extent has one difference from the base, and the verdict names it as
+// such; it read "every difference from base lies within ±0.02 with its 95%
+// interval; the largest is ..." and, for the Boyce index, "of its
+// differences from base, 0 of 1 lie beyond ±0.1" (an audit of the
+// report's sentences on a study with one extent besides the base). The
+// sample's differences of good on whole: AUC +0.138 (0.063 to 0.213),
+// Boyce +0.013; the robust case sets the AUC's to +0.004 (0.001 to
+// 0.007) by hand.
+func TestOneOtherExtentWords(t *testing.T) {
+	oneOther := func() *Results {
+		r := loadSample(t)
+		for i := range r.Scores {
+			if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent != vocab.BaseID && sc.Extent != "whole" {
+				sc.Scored, sc.NotScored = false, "no test points inside this extent"
+			}
+		}
+		return r
+	}
+	s := analyzed(t, oneOther())
+	mv := s.findModelVerdict("auc", "good")
+	if mv == nil || mv.Verdict != JudgementSensitive || len(mv.Diffs) != 1 {
+		t.Fatalf("verdict %+v", mv)
+	}
+	checkWords(t, "sensitive", mv.Sentence,
+		[]string{"AUC of good is extent-sensitive: its one difference from base, +0.138 on whole (95% interval +0.063 to +0.213), lies wholly beyond our tolerance of ±0.02."},
+		[]string{"1 of 1", "the largest"})
+	mv = s.findModelVerdict("boyce", "good")
+	if mv == nil {
+		t.Fatal("no Boyce verdict of good")
+	}
+	checkWords(t, "Boyce", mv.Sentence, []string{"its one difference from base, +0.013 on whole, lies within ±0.1."}, []string{"0 of 1", "the largest"})
+
+	r := oneOther()
+	if setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.004, 0.001, 0.007 }) != 1 {
+		t.Fatal("no record of good on whole")
+	}
+	mv = analyzed(t, r).findModelVerdict("auc", "good")
+	if mv == nil || mv.Verdict != JudgementRobust {
+		t.Fatalf("verdict %+v", mv)
+	}
+	checkWords(t, "robust", mv.Sentence,
+		[]string{"AUC of good is robust to the extent: its one difference from base, +0.004 on whole (95% interval +0.001 to +0.007), lies within ±0.02."},
+		[]string{"every difference", "the largest"})
+}
