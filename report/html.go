@@ -321,8 +321,14 @@ func baseNote(r *Results) string {
 	if len(s.ScoredExtents) == 1 {
 		return fmt.Sprintf("The one scored extent is %s (%s).", e.ID, what)
 	}
-	return fmt.Sprintf("%s (%s). Every \"difference from %s\" on this page is a score on another extent minus the score on %s, on the test points both hold; the Extents section lists every extent.",
-		upperFirst(referenceText(s, "the base extent is %s")), what, e.ID, e.ID)
+	lead := fmt.Sprintf("The base extent is %s (%s)", e.ID, what)
+	if s.BaseExtent != vocab.BaseID {
+		// The extent's description before the stand-in's bracket, not
+		// a bracket after a bracket.
+		lead = fmt.Sprintf("The reference extent %s (%s)%s", e.ID, what, standInText(s))
+	}
+	return fmt.Sprintf("%s. Every \"difference from %s\" on this page is a score on another extent minus the score on %s, on the test points both hold; the Extents section lists every extent.",
+		lead, e.ID, e.ID)
 }
 
 // svgMarker is the text the page template gets in place of the i-th

@@ -114,7 +114,7 @@ func analysisSection(r *Results) analysisView {
 		// base extent, and none stands in for it.
 		v.BaseExtent = vocab.BaseID
 	} else if s.BaseExtent != vocab.BaseID {
-		v.StandIn = strings.TrimPrefix(referenceText(s, "%s"), "the reference extent "+s.BaseExtent)
+		v.StandIn = standInText(s)
 		if v.StandIn == "" {
 			v.StandIn = ", the first scored extent"
 		}

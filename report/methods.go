@@ -387,13 +387,21 @@ func referenceText(s *Sensitivity, format string) string {
 		// differences would be taken from the base extent.
 		return fmt.Sprintf(format, vocab.BaseID)
 	}
+	return fmt.Sprintf("the reference extent %s%s", s.BaseExtent, standInText(s))
+}
+
+// standInText is what referenceText says after the reference extent's id
+// when it stands in for the base extent: ", in place of the base extent
+// base (left out: why)", or "" when the base extent was not among the
+// extents left out.
+func standInText(s *Sensitivity) string {
 	why := ""
 	for _, e := range s.SkippedExtents {
 		if e.ID == vocab.BaseID {
 			why = fmt.Sprintf(", in place of the base extent %s (left out: %s)", e.ID, e.Reason)
 		}
 	}
-	return fmt.Sprintf("the reference extent %s%s", s.BaseExtent, why)
+	return why
 }
 
 // referenceName is referenceText without the base extent's id, which is

@@ -1495,6 +1495,11 @@ func TestReferenceExtentInPlaceOfBase(t *testing.T) {
 		"(the reference extent " + ref + " and " + fmt.Sprint(len(s.ScoredExtents)-1) + " others; it stands in for the base extent base, left out: no model could be scored)"},
 		append(notWant, "(left out: no model could be scored) and"))
 	checkWords(t, "headline", s.Headline, []string{"Differences are taken from the reference extent " + ref + ", in place of the base extent base (left out: "}, nil)
+	// The page's note on the reference: the extent's own description in
+	// its bracket, then the stand-in's; it read "The reference extent X,
+	// in place of the base extent base (left out: ...) (kind ...)", a
+	// bracket after a bracket.
+	checkWords(t, "base note", baseNote(r), []string{"The reference extent " + ref + " (kind ", "), in place of the base extent base (left out: no model could be scored). Every"}, []string{") ("})
 	if r0 := analyzed(t, withNull(t)); strings.Contains(r0.Headline, "Differences are taken from") {
 		t.Errorf("headline with the base extent scored names a reference extent: %s", r0.Headline)
 	}
