@@ -121,7 +121,7 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 		}
 		s.recordExtent(m.Name, scores[k])
 	}
-	s.logf("%s: scores on %d extents (bootstraps included) in %.2f s", m.Name, len(s.fam.Members), time.Since(t0).Seconds())
+	s.logf("%s: scores on %s (bootstraps included) in %.2f s", m.Name, scoredCount(scores), time.Since(t0).Seconds())
 	if err := s.rings(m.Name, sums.Accs, in.values); err != nil {
 		return wait(err)
 	}
@@ -214,6 +214,23 @@ type extentScore struct {
 	sc    report.Score
 	ev    *metrics.Evaluator // nil when not scored
 	curve report.Curve
+}
+
+// scoredCount says for run.log on how many of the members a model was
+// scored: "12 extents", or "10 of 12 extents" when some were not (a
+// duplicate of another extent, no valid cell, too few test points: the
+// Extents table of the report says which and why).
+func scoredCount(scores []extentScore) string {
+	n := 0
+	for _, e := range scores {
+		if e.sc.Scored {
+			n++
+		}
+	}
+	if n == len(scores) {
+		return fmt.Sprintf("%d extent%s", n, report.Plural(n))
+	}
+	return fmt.Sprintf("%d of %d extent%s", n, len(scores), report.Plural(len(scores)))
 }
 
 // scoreExtent scores model on member k from its accumulator acc: nothing
