@@ -195,7 +195,7 @@ func (s *BatchSummary) effectSentence() string {
 		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
 	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s%s, on %d common test point%s)", signed3(r.Effect), r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
+		return fmt.Sprintf("%s (study %s, model %s, extent %s%s, on %d common test point%s)", signedSmall(r.Effect), r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
 	}
 	lower := "AUC lower on the extent than on the base extent"
 	if slices.ContainsFunc(defined, func(r BatchRow) bool { return effectReference(r) != "" }) {
@@ -216,7 +216,7 @@ func (s *BatchSummary) effectSentence() string {
 		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
 		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
 		"a description of these studies, not an estimate for others.",
-		where(lo), where(hi), neg, lower, zeroText, pos, f3(med), len(defined), len(studies), ies(len(studies)), fewText)
+		where(lo), where(hi), neg, lower, zeroText, pos, smallPositive(med), len(defined), len(studies), ies(len(studies)), fewText)
 }
 
 // effectReference names the extent a row's extent effect is taken from

@@ -123,8 +123,11 @@ func pageRowOf(r BatchRow, link string) pageRow {
 		pr.Range = f3(r.AUCMin) + "–" + f3(r.AUCMax)
 	}
 	if r.EffectDefined {
-		pr.Effect = signed3(r.Effect) + " (" + r.EffectExtent + ", " + fmt.Sprint(r.EffectPoints) + " common)"
-		pr.Interval = signed3(r.EffectLow) + " to " + signed3(r.EffectHigh)
+		// signedSmall: a difference of 0.0002 reads "+0.0002", not
+		// "+0.000", and an interval's ends show on which side of 0 and
+		// of the tolerance they lie, as in each study's report.
+		pr.Effect = signedSmall(r.Effect) + " (" + r.EffectExtent + ", " + fmt.Sprint(r.EffectPoints) + " common)"
+		pr.Interval = signedSmall(r.EffectLow, r.Tolerance, -r.Tolerance) + " to " + signedSmall(r.EffectHigh, r.Tolerance, -r.Tolerance)
 		if r.EffectNotJudged != "" {
 			// A description: the interval of a difference not judged is
 			// not shown as if it were inference.
@@ -135,8 +138,8 @@ func pageRowOf(r BatchRow, link string) pageRow {
 		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
 	}
 	if r.NullDefined {
-		pr.Null = signed3(r.NullDiff) + " (" + r.Null + ")"
-		pr.NullInterval = signed3(r.NullLow) + " to " + signed3(r.NullHigh)
+		pr.Null = signedSmall(r.NullDiff) + " (" + r.Null + ")"
+		pr.NullInterval = signedSmall(r.NullLow) + " to " + signedSmall(r.NullHigh)
 		if r.NullNotJudged != "" {
 			pr.NullInterval = "not judged (" + r.NullNotJudged + ")"
 		}

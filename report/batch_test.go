@@ -808,3 +808,28 @@ func TestEffectSentenceNamesReference(t *testing.T) {
 		})
 	}
 }
+
+// TestBatchSmallDifferences: the summary table printed an extent effect of
+// -0.0003 (95% interval -0.0004 to -0.0002) and a gap to the null of
+// +0.0004 as "-0.000" and "+0.000 to +0.000", which read as no difference
+// at all; they keep their digits and sign, as in each study's report, and
+// an interval's end near the tolerance shows its side of it.
+func TestBatchSmallDifferences(t *testing.T) {
+	r := BatchRow{Study: "s", Model: "m", EffectDefined: true, EffectExtent: "hull", Effect: -0.0003, EffectLow: -0.0004, EffectHigh: -0.0002,
+		EffectPoints: 40, EffectJudged: true, Tolerance: 0.02, Null: "distance_null", NullDefined: true, NullDiff: 0.0004, NullLow: 0.0001, NullHigh: 0.0007}
+	pr := pageRowOf(r, "")
+	for _, c := range []struct{ got, want string }{
+		{pr.Effect, "-0.0003 (hull, 40 common)"},
+		{pr.Interval, "-0.0004 to -0.0002"},
+		{pr.Null, "+0.0004 (distance_null)"},
+		{pr.NullInterval, "+0.0001 to +0.001"}, // three decimals where they tell it from 0
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+	r.Effect, r.EffectLow, r.EffectHigh = 0.05, 0.0201, 0.08
+	if got, want := pageRowOf(r, "").Interval, "+0.0201 to +0.080"; got != want {
+		t.Errorf("interval against the tolerance %q, want %q", got, want)
+	}
+}
