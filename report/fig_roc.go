@@ -246,7 +246,8 @@ var rocBand = color.Gray{Y: 225}
 // rocPanel draws model's panel: the null's shade, the partial ROC band at
 // e, the random prediction (diag) and one curve per extent of es on the
 // area ramp from amin to amax (the anchors in their own styles), largest
-// first.
+// first. The panel of a model or null scored on no extent holds only
+// rocUnscoredNote.
 func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
 	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
@@ -265,6 +266,13 @@ func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, pane
 		shade.Color = nullPanelShade
 		shade.LineStyle.Width = 0
 		p.Add(shade)
+	}
+	if scored, _ := scoredModels(r); !scored[model] {
+		// No curve to read against the band and the diagonal: the panel
+		// says why it is empty in the figure itself, not only in the
+		// report's caption (the PNG or PDF travels without it).
+		p.Add(panelNote{s: rocUnscoredNote})
+		return p, nil
 	}
 	if e > 0 {
 		poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
@@ -316,6 +324,21 @@ func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, pane
 		p.Add(newPaddingLine(l))
 	}
 	return p, nil
+}
+
+// rocUnscoredNote is written in the empty ROC panel of a model or null
+// scored on no extent (a constant raster), which draws neither the
+// partial ROC band nor the random prediction.
+const rocUnscoredNote = "not scored on any extent"
+
+// panelNote is a text centred in a panel's data area, at the label size.
+type panelNote struct{ s string }
+
+// Plot implements plot.Plotter.
+func (n panelNote) Plot(c draw.Canvas, _ *plot.Plot) {
+	sty := textStyle(minFontPt)
+	sty.XAlign, sty.YAlign = draw.XCenter, draw.YCenter
+	c.FillText(sty, vg.Point{X: (c.Min.X + c.Max.X) / 2, Y: (c.Min.Y + c.Max.Y) / 2}, n.s)
 }
 
 // nullPanelShade fills the data area of a null's ROC panel, lighter than
