@@ -342,3 +342,65 @@ func TestRingPagesSentence(t *testing.T) {
 		}
 	}
 }
+
+// TestRingManyModelsSplit: with twelve models the value columns beside a
+// ring_steps panel left its data area about 60 pt wide, and the AUC
+// axis's tick labels were printed over each other (0.650.700.750.800.85;
+// a study of twelve models). A chain's models are now split over panels
+// whose data area keeps ringMinDataW: every model on exactly one panel
+// of the chain, each text inside its page and clear of every other.
+func TestRingManyModelsSplit(t *testing.T) {
+	for _, models := range []int{6, 12, 20} {
+		w := syntheticWaterfall("region", 6, models, 0)
+		var chains []ChainSummary
+		var names []string
+		r := &Results{}
+		for k, cs := range w.cs {
+			chains = append(chains, *cs)
+			names = append(names, cs.Model)
+			r.Models = append(r.Models, Model{Name: fmt.Sprintf("m%d", k)})
+		}
+		r.Sensitivity = &Sensitivity{ModelNames: names, Chains: chains}
+		fs := ringsFigures(r)
+		if len(fs) == 0 {
+			t.Fatalf("%d models: no figure", models)
+		}
+		seen := map[string]int{}
+		for _, f := range fs {
+			svg, err := render(f, "svg")
+			if err != nil {
+				t.Fatal(err)
+			}
+			name := fmt.Sprintf("%d models, %s", models, f.Name)
+			checkTexts(t, name, svg)
+			probs, _ := checkAxisLabels(t, name, svg)
+			for _, p := range probs {
+				t.Error(p)
+			}
+			texts, _ := parseSVG(t, svg)
+			for _, tx := range texts {
+				if strings.HasPrefix(tx.s, "model m") {
+					seen[tx.s]++
+				}
+			}
+		}
+		for _, m := range names {
+			if seen["model "+m] == 0 {
+				t.Errorf("%d models: model %s in no key", models, m)
+			}
+		}
+		split := strings.Contains(fs[0].Caption, "split over panels")
+		if want := models > 6; split != want {
+			t.Errorf("%d models: caption says split %v, want %v: %s", models, split, want, fs[0].Caption)
+		}
+	}
+	// The split itself: as even as possible, in model order, numbered.
+	w := syntheticWaterfall("region", 4, 12, 0)
+	parts := splitWide([]*chainWaterfall{w}, 7)
+	if len(parts) != 2 || len(parts[0].cs) != 6 || len(parts[1].cs) != 6 || parts[1].models[0] != 6 || parts[1].part != 2 || parts[1].parts != 2 {
+		t.Fatalf("12 models at 7 a panel: %d parts", len(parts))
+	}
+	if got := (ringSeg{w: parts[1], to: parts[1].rows()}).title(12); got != "nested chain region, 6 of 12 models (part 2 of 2)" {
+		t.Errorf("title %q", got)
+	}
+}
