@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"slices"
 	"strings"
 	"testing"
@@ -93,5 +94,78 @@ func TestROCEmptyPanelSaysWhy(t *testing.T) {
 	}
 	if slices.Contains(drawnTexts(t, rocFigure(analyzedSample(t))), first) {
 		t.Errorf("sample (every model scored): a panel says %q", first)
+	}
+}
+
+// scoredEverywhere gives every model and null of r a scored Score on each
+// extent it has none on, a copy of its first scored one with the extent's
+// ID and area: manyExtents renames the sample's extents, whose scores then
+// name none of them, and a figure draws no curve of an extent nothing is
+// scored on.
+func scoredEverywhere(r *Results) *Results {
+	first := map[string]Score{}
+	has := map[[2]string]bool{}
+	for _, sc := range r.Scores {
+		has[[2]string{sc.Model, sc.Extent}] = true
+		if _, ok := first[sc.Model]; !ok && sc.Scored {
+			first[sc.Model] = sc
+		}
+	}
+	for _, m := range r.Models {
+		sc, ok := first[m.Name]
+		if !ok {
+			continue
+		}
+		for _, e := range r.Extents {
+			if !has[[2]string{m.Name, e.ID}] {
+				c := sc
+				c.Extent, c.AreaKm2 = e.ID, e.AreaKm2
+				r.Scores = append(r.Scores, c)
+			}
+		}
+	}
+	return r
+}
+
+// TestROCNoCurveExtent: an extent with no test points inside is scored for
+// no model, so no panel draws its curve, yet the ROC figure's colour bar
+// took a tick at its area ("a tick for each curve"), its area could
+// stretch the bar's range, and past 16 extents the thinning could keep it
+// as a chain's smallest member in place of a curve (a study with a user
+// extent away from every point). Such an extent is left out of the
+// curves' extents and named in the caption.
+func TestROCNoCurveExtent(t *testing.T) {
+	for _, n := range []int{10, 60} {
+		r := scoredEverywhere(manyExtents(t, n))
+		// The smallest point buffer: no test point inside.
+		var gone string
+		for _, e := range rocExtents(r) {
+			if e.Chain == "points" {
+				gone = e.ID
+				break
+			}
+		}
+		for i := range r.Scores {
+			if r.Scores[i].Extent == gone {
+				r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+			}
+		}
+		kept, none := rocCurveExtents(r, rocExtents(r))
+		if len(none) != 1 || none[0] != gone || len(kept) != len(rocExtents(r))-1 {
+			t.Fatalf("n=%d: no curve %v, want [%s]; %d kept", n, none, gone, len(kept))
+		}
+		shown, _ := rocShown(kept)
+		for _, e := range shown {
+			if e.ID == gone {
+				t.Errorf("n=%d: %s shown without a curve", n, gone)
+			}
+		}
+		f := rocFigure(analyzedSampleWith(t, r))
+		checkWords(t, fmt.Sprintf("n=%d: caption", n), f.Caption,
+			[]string{"No model or null is scored on " + gone + " (the Scores table says why), so it has no curve."}, nil)
+	}
+	r := scoredEverywhere(manyExtents(t, 10))
+	if f := rocFigure(analyzedSampleWith(t, r)); strings.Contains(f.Caption, "No model or null is scored on") {
+		t.Errorf("every extent scored: %s", f.Caption)
 	}
 }

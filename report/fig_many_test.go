@@ -280,7 +280,7 @@ func checkTexts(t *testing.T, name string, svg []byte) {
 // which span the whole range of areas, and the caption says so.
 func TestROCShown(t *testing.T) {
 	for _, n := range []int{10, 13, 16, 17, 60, 256} {
-		r := manyExtents(t, n)
+		r := scoredEverywhere(manyExtents(t, n))
 		es := rocExtents(r)
 		shown, thinned := rocShown(es)
 		if len(es) <= rocMaxCurves {

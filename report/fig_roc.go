@@ -69,6 +69,42 @@ func rocShown(es []Extent) ([]Extent, bool) {
 	return out, len(out) < len(es)
 }
 
+// rocCurveExtents returns the extents of es that some model or null is
+// scored on, which have a curve, and the IDs of the others (no test
+// points inside): those have no curve in any panel, so they neither
+// take a tick on the colour bar nor stretch its range, and the thinning
+// past rocMaxCurves never keeps one of them in place of a curve.
+func rocCurveExtents(r *Results, es []Extent) ([]Extent, []string) {
+	scored := map[string]bool{}
+	for _, sc := range r.Scores {
+		if sc.Scored {
+			scored[sc.Extent] = true
+		}
+	}
+	var kept []Extent
+	var none []string
+	for _, e := range es {
+		if scored[e.ID] {
+			kept = append(kept, e)
+		} else {
+			none = append(none, e.ID)
+		}
+	}
+	return kept, none
+}
+
+// noCurveSentence names the extents without a curve in any panel, for
+// the ROC figure's caption; "" for none.
+func noCurveSentence(ids []string) string {
+	switch len(ids) {
+	case 0:
+		return ""
+	case 1:
+		return " No model or null is scored on " + ids[0] + " (the Scores table says why), so it has no curve."
+	}
+	return " No model or null is scored on " + joinList(ids) + " (the Scores table says why), so they have no curve."
+}
+
 func findCurve(r *Results, model, extent string) *Curve {
 	for i := range r.Curves {
 		if r.Curves[i].Model == model && r.Curves[i].Extent == extent {
@@ -108,7 +144,7 @@ func rocFigure(r *Results) figure {
 	if len(r.Settings.E) > 0 {
 		e = r.Settings.E[0]
 	}
-	all := rocExtents(r)
+	all, noCurve := rocCurveExtents(r, rocExtents(r))
 	es, thinned := rocShown(all)
 	amin, amax := 0.0, 0.0
 	if len(es) > 0 {
@@ -124,6 +160,9 @@ func rocFigure(r *Results) figure {
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
 	f.Caption = rocCaption(r, es, len(all), thinned, e)
+	if len(es) > 0 {
+		f.Caption += noCurveSentence(noCurve)
+	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
 	legend := legendRows(rocLegend(r, es, e, diag), f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
@@ -181,7 +220,10 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
 	curves := "one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)" + anchorNote
-	if !rampCurves(es) {
+	switch {
+	case len(es) == 0:
+		curves = "no curve: no model or null is scored on any extent. "
+	case !rampCurves(es):
 		// Only the base region and the whole raster: no colour bar.
 		curves = "one curve per extent: " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
