@@ -169,3 +169,38 @@ func TestROCNoCurveExtent(t *testing.T) {
 		t.Errorf("every extent scored: %s", f.Caption)
 	}
 }
+
+// TestTextsClearOfRightEdge: a map's x axis that ends on a tick (a grid
+// from 150°W to 120°W) put the label "120°W" flush with the figure's right
+// edge, its last letter in the PNG's last column of pixels and 0.1 pt past
+// the edge in the SVG (the demo's maps; "10000" on model_minus_null
+// likewise). Every text of those figures now ends at least 1 pt inside.
+func TestTextsClearOfRightEdge(t *testing.T) {
+	r := analyzedSample(t)
+	// Bounds on whole multiples of the map's tick step (2°): labels at
+	// both ends of the x axis.
+	r.Preview.Bounds = [4]float64{4, 43.5, 12, 48}
+	var checked int
+	for _, f := range figures(r) {
+		if f.Name != mapFigureName && f.Name != nullFigureName {
+			continue
+		}
+		rec := &recorder.Canvas{}
+		if err := f.draw(draw.NewCanvas(rec, f.W, f.H)); err != nil {
+			t.Fatal(err)
+		}
+		for _, a := range rec.Actions {
+			fs, ok := a.(*recorder.FillString)
+			if !ok || strings.HasPrefix(fs.String, "share of test") || strings.HasPrefix(fs.String, "AUC difference") || strings.HasSuffix(fs.String, "°N") {
+				continue // y-axis titles are drawn on a rotated canvas
+			}
+			checked++
+			if end := fs.Point.X + textWidth(fs.String, fs.Size.Points()); end > f.W-1 {
+				t.Errorf("%s: %q ends at %.2f pt, within 1 pt of the %.2f pt edge", f.Name, fs.String, end.Points(), f.W.Points())
+			}
+		}
+	}
+	if checked == 0 {
+		t.Fatal("no text checked")
+	}
+}

@@ -757,6 +757,7 @@ func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
 // point (0 off geographic grids).
 func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
 	legC, mapC := splitBottom(cell, legendH)
+	mapC.Max.X -= edgePad
 	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
 	var img image.Image = m.pal
 	if _, raster := cell.Canvas.(*pngCanvas); raster {

@@ -273,6 +273,7 @@ func nullGapFigures(r *Results) []figure {
 		legend := legendRows(items, f.W)
 		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
 		drawLegendRows(top, legend)
+		rest.Max.X -= edgePad
 		p.Draw(rest)
 		return nil
 	}

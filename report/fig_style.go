@@ -24,6 +24,14 @@ const (
 	maxHeight = 230 * vg.Millimeter
 )
 
+// edgePad is the room kept between a panel that reaches the right side
+// of its figure and the figure's edge: the plot fits the last tick label
+// of its x axis inside its canvas exactly, so a label at the axis's end
+// ("120°W", "10000") ended on the edge itself, its last letter in the
+// PNG's last column of pixels and a hair past the edge in the SVG's
+// rounded coordinates.
+const edgePad = 3 * vg.Length(1)
+
 // Font sizes in points at print size; nothing is smaller than minFontPt.
 const (
 	minFontPt   = 8
