@@ -375,7 +375,7 @@ func drawRampBar(c draw.Canvas, rk *rampKey, n int) {
 		img.Set(x, 0, areaRamp((float64(x)+0.5)/float64(n)))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
-	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
+	p.Add(rampImage{img: img, xmin: lo, ymin: 0, xmax: hi, ymax: 1})
 	if rk.log {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = logTicks{W: c.Max.X - c.Min.X - vg.Points(10), Pt: minFontPt}

@@ -411,7 +411,7 @@ func drawAreaBar(c draw.Canvas, lo, hi float64, marks []float64) {
 		img.Set(0, y, areaRamp(1-(float64(y)+0.5)/n))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
-	p.Add(plotter.NewImage(img, 0, lo, 1, hi))
+	p.Add(rampImage{img: img, xmin: 0, ymin: lo, xmax: 1, ymax: hi})
 	p.Y.Scale = plot.LogScale{}
 	p.Y.Tick.Marker = logTicks{}
 	p.Y.Min, p.Y.Max = lo, hi

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"image"
 	"image/color"
 	"math"
 	"strings"
@@ -360,6 +361,30 @@ func drawTiles(plots [][]*plot.Plot, dc draw.Canvas) {
 			}
 		}
 	}
+}
+
+// rampImage is a colour bar's image drawn over the data range xmin..xmax,
+// ymin..ymax as it is: its pixels already run evenly along the axis as
+// drawn (the area ramp is even in the logarithm of the area). gonum's
+// Image plotter, on a log axis, warps an image as if its pixels were even
+// in the value, so the ROC and map area bars showed at 1000 km² the colour
+// of about 1,600 km² (a third of the bar away from the curves and outlines
+// they key), and handed the PDF a 16-bit copy that poppler drew upside
+// down.
+type rampImage struct {
+	img                    image.Image
+	xmin, ymin, xmax, ymax float64
+}
+
+// Plot implements plot.Plotter.
+func (r rampImage) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	c.DrawImage(vg.Rectangle{Min: vg.Point{X: trX(r.xmin), Y: trY(r.ymin)}, Max: vg.Point{X: trX(r.xmax), Y: trY(r.ymax)}}, r.img)
+}
+
+// DataRange implements plot.DataRanger.
+func (r rampImage) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return r.xmin, r.xmax, r.ymin, r.ymax
 }
 
 // splitTop returns the top strip of height h and the rest of c.
