@@ -2,7 +2,12 @@ package report
 
 import (
 	"fmt"
+	"image"
 	"image/color"
+	"image/png"
+	"os"
+	"os/exec"
+	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
@@ -258,4 +263,80 @@ func absDiff(a, b uint32) uint32 {
 		return a - b
 	}
 	return b - a
+}
+
+// TestPDFImagesUpright: the PDF writer drew every image upside down: the
+// maps' suitability background under outlines and points that were not
+// (the demo's small islands at 35°S instead of 45°S), and the ROC area
+// bar's large areas at its foot, against the PNG and SVG. Read back by an
+// independent renderer (poppler's pdftoppm, Debian poppler-utils), an
+// image of a red upper and a blue lower half is red above and blue below,
+// drawn as RGBA and as a paletted image, and flipRows reverses the rows
+// of any other kind too.
+func TestPDFImagesUpright(t *testing.T) {
+	red, blue := color.RGBA{255, 0, 0, 255}, color.RGBA{0, 0, 255, 255}
+	halves := func(w, h int) *image.RGBA {
+		img := image.NewRGBA(image.Rect(0, 0, w, h))
+		for y := range h {
+			for x := range w {
+				img.Set(x, y, map[bool]color.Color{true: red, false: blue}[y < h/2])
+			}
+		}
+		return img
+	}
+	pal := image.NewPaletted(image.Rect(0, 0, 6, 4), color.Palette{red, blue})
+	for y := range 4 {
+		for x := range 6 {
+			pal.Set(x, y, halves(6, 4).At(x, y))
+		}
+	}
+	nrgba := image.NewNRGBA(image.Rect(0, 0, 1, 2))
+	nrgba.Set(0, 0, red)
+	nrgba.Set(0, 1, blue)
+	if got := flipRows(nrgba); !sameRGB(got.At(0, 0), blue) || !sameRGB(got.At(0, 1), red) {
+		t.Errorf("flipRows of an NRGBA image: top %v, want blue", got.At(0, 0))
+	}
+	if _, err := exec.LookPath("pdftoppm"); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("pdftoppm not found: CI must install Debian's poppler-utils (scripts/setup.sh --test)")
+		}
+		t.Skip("pdftoppm not found: install Debian's poppler-utils to run this test (a skip is not a pass)")
+	}
+	for name, img := range map[string]image.Image{"rgba 1x2": halves(1, 2), "rgba 8x6": halves(8, 6), "paletted 6x4": pal} {
+		f := figure{Name: "upright", W: 100, H: 100, draw: func(c draw.Canvas) error {
+			c.DrawImage(vg.Rectangle{Min: vg.Point{X: 10, Y: 10}, Max: vg.Point{X: 90, Y: 90}}, img)
+			return nil
+		}}
+		pdf, err := render(f, "pdf")
+		if err != nil {
+			t.Fatal(err)
+		}
+		dir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(dir, "f.pdf"), pdf, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if out, err := exec.Command("pdftoppm", "-r", "72", "-png", "-singlefile", filepath.Join(dir, "f.pdf"), filepath.Join(dir, "f")).CombinedOutput(); err != nil {
+			t.Fatalf("pdftoppm: %v: %s", err, out)
+		}
+		fh, err := os.Open(filepath.Join(dir, "f.png"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		page, err := png.Decode(fh)
+		fh.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		// 100 pt at 72 dpi: 100 pixels, y down; the image spans 10 to 90.
+		if top, bottom := page.At(50, 25), page.At(50, 75); !sameRGB(top, red) || !sameRGB(bottom, blue) {
+			t.Errorf("%s: the PDF shows %v above and %v below, want red above blue", name, top, bottom)
+		}
+	}
+}
+
+// sameRGB reports whether two colours agree within 8 of 255 per channel.
+func sameRGB(a, b color.Color) bool {
+	ar, ag, ab, _ := a.RGBA()
+	br, bg, bb, _ := b.RGBA()
+	return absDiff(ar>>8, br>>8) <= 8 && absDiff(ag>>8, bg>>8) <= 8 && absDiff(ab>>8, bb>>8) <= 8
 }

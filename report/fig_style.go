@@ -369,8 +369,7 @@ func drawTiles(plots [][]*plot.Plot, dc draw.Canvas) {
 // Image plotter, on a log axis, warps an image as if its pixels were even
 // in the value, so the ROC and map area bars showed at 1000 km² the colour
 // of about 1,600 km² (a third of the bar away from the curves and outlines
-// they key), and handed the PDF a 16-bit copy that poppler drew upside
-// down.
+// they key).
 type rampImage struct {
 	img                    image.Image
 	xmin, ymin, xmax, ymax float64
