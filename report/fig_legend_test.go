@@ -340,3 +340,49 @@ func sameRGB(a, b color.Color) bool {
 	br, bg, bb, _ := b.RGBA()
 	return absDiff(ar>>8, br>>8) <= 8 && absDiff(ag>>8, bg>>8) <= 8 && absDiff(ab>>8, bb>>8) <= 8
 }
+
+// TestMapUnscoredModel: when the first model, the maps' background, is a
+// constant raster it is scored on no extent and has no threshold, yet the
+// maps' key read "test point omitted at the 10th percentile training
+// presence (none)", as if it omitted no test point, and its suitability
+// bar ran from 0.5 to 1.5 (ticks 0.6 to 1.4) for a raster of 0.5
+// everywhere. The key now has no omission marks and the caption says why;
+// the bar shows the one value.
+func TestMapUnscoredModel(t *testing.T) {
+	r := loadSample(t)
+	first := r.Models[0].Name
+	for i := range r.Scores {
+		if r.Scores[i].Model == first {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
+	analyzed(t, r)
+	r.Preview.ValueMin, r.Preview.ValueMax = 0.5, 0.5
+	f, ok := mapFigure(r)
+	if !ok {
+		t.Fatal("no map figure")
+	}
+	texts := drawnTexts(t, f)
+	var ticks []string
+	for _, s := range texts {
+		if strings.Contains(s, "omitted") {
+			t.Errorf("key of an unscored model: %q", s)
+		}
+		if _, err := fmt.Sscanf(s, "%g", new(float64)); err == nil && !strings.ContainsAny(s, "°") {
+			ticks = append(ticks, s)
+		}
+	}
+	if !slices.Contains(texts, "suitability, model "+first+" (one value on every cell)") {
+		t.Errorf("bar label: %q", texts)
+	}
+	for _, s := range []string{"0.6", "1.0", "1.4"} {
+		if slices.Contains(ticks, s) {
+			t.Errorf("the bar of a raster of 0.5 ticks %s: %q", s, ticks)
+		}
+	}
+	checkWords(t, "caption", f.Caption, []string{"no omission marks: model " + first + " is scored on no extent"}, []string{"omits at the 10th percentile", "under the omission marks"})
+
+	// The sample as it is: the marks and their words.
+	f, _ = mapFigure(analyzedSample(t))
+	checkWords(t, "sample caption", f.Caption, []string{"omits at the 10th percentile", "under the omission marks"}, []string{"no omission marks"})
+}
