@@ -138,8 +138,29 @@ func drawArrow(c draw.Canvas, ls draw.LineStyle, x0, x1, y vg.Length) {
 		}
 		return
 	}
+	ls.Dashes = arrowDashes(ls.Dashes, (x1-dir*head*0.8-x0)*dir)
 	c.StrokeLine2(ls, x0, y, x1-dir*head*0.8, y)
 	c.FillPolygon(ls.Color, []vg.Point{{X: x1, Y: y}, {X: x1 - dir*head, Y: y + vg.Points(2.6)}, {X: x1 - dir*head, Y: y - vg.Points(2.6)}})
+}
+
+// arrowDashes is the dash pattern d of an arrow whose shaft is shaft
+// long: d itself when the shaft holds three of its periods, else d
+// shrunk until it does, each dash and gap at least 0.5 pt. A short arrow
+// of test records (a shaft of one 2.5 pt dash) drew as solid as a ring's.
+func arrowDashes(d []vg.Length, shaft vg.Length) []vg.Length {
+	var period vg.Length
+	for _, l := range d {
+		period += l
+	}
+	if period <= 0 || shaft >= 3*period {
+		return d
+	}
+	f := shaft / (3 * period)
+	out := make([]vg.Length, len(d))
+	for i, l := range d {
+		out[i] = max(l*f, vg.Points(0.5))
+	}
+	return out
 }
 
 // aucRange is the range of every AUC the chain's panel draws (all its

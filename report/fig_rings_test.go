@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/recorder"
 )
 
 // syntheticWaterfall is a chain of the given number of rows (at least
@@ -402,5 +403,43 @@ func TestRingManyModelsSplit(t *testing.T) {
 	}
 	if got := (ringSeg{w: parts[1], to: parts[1].rows()}).title(12); got != "nested chain region, 6 of 12 models (part 2 of 2)" {
 		t.Errorf("title %q", got)
+	}
+}
+
+// TestShortDashedArrow: a step of test records is drawn dashed (2.5 pt
+// dashes, 1.5 pt gaps) and a ring solid, but a short step's shaft held one
+// dash and read as solid (six models on the demo: steps of 0.04 AUC). A
+// dashed shaft now holds at least two periods of its pattern, however
+// short, down to dashes and gaps of 0.5 pt.
+func TestShortDashedArrow(t *testing.T) {
+	dashed := []vg.Length{vg.Points(2.5), vg.Points(1.5)}
+	for _, shaft := range []vg.Length{2, 3.6, 6, 9, 12, 40} {
+		got := arrowDashes(dashed, shaft)
+		var period vg.Length
+		for _, l := range got {
+			period += l
+			if l < vg.Points(0.5)-1e-9 {
+				t.Errorf("shaft %.1f pt: dash or gap %.2f pt, below 0.5", shaft.Points(), l.Points())
+			}
+		}
+		if 2*period > shaft && period > vg.Points(1.0)+1e-9 {
+			t.Errorf("shaft %.1f pt: pattern %v (period %.2f pt) shows fewer than two dashes", shaft.Points(), got, period.Points())
+		}
+		if shaft >= 12 && (got[0] != dashed[0] || got[1] != dashed[1]) {
+			t.Errorf("shaft %.1f pt: a long shaft's pattern changed to %v", shaft.Points(), got)
+		}
+	}
+	if got := arrowDashes(nil, 3); got != nil {
+		t.Errorf("solid arrow given dashes %v", got)
+	}
+	// As drawn: a step of 10 pt (a shaft of 6.8 pt) of test records.
+	rec := &recorder.Canvas{}
+	drawArrow(draw.NewCanvas(rec, 100, 20), lineStyle(ink, 1.4, dashed), 10, 20, 10)
+	for _, a := range rec.Actions {
+		if sd, ok := a.(*recorder.SetLineDash); ok && len(sd.Dashes) > 0 {
+			if period := sd.Dashes[0] + sd.Dashes[1]; 2*period > 6.8 {
+				t.Errorf("10 pt step: shaft dashed %v, fewer than two dashes in 6.8 pt", sd.Dashes)
+			}
+		}
 	}
 }
