@@ -280,7 +280,7 @@ func checkTexts(t *testing.T, name string, svg []byte) {
 // which span the whole range of areas, and the caption says so.
 func TestROCShown(t *testing.T) {
 	for _, n := range []int{10, 13, 16, 17, 60, 256} {
-		r := manyExtents(t, n)
+		r := scoredEverywhere(manyExtents(t, n))
 		es := rocExtents(r)
 		shown, thinned := rocShown(es)
 		if len(es) <= rocMaxCurves {
@@ -706,6 +706,41 @@ func TestNullsTellApart(t *testing.T) {
 		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph:
 		default:
 			t.Errorf("null %d's marker %T is not hollow", k, gs.Shape)
+		}
+	}
+}
+
+// TestLogTicksNarrow: an area axis too narrow for two 1, 2 or 5 x 10^k
+// labels (one extent scored: its area padded by 1.25 each side) fell back
+// to six labels whatever the axis's length, and on a metrics panel
+// (about 125 pt) "3750" and "4000" touched. With an axis length, the
+// fallback keeps at least two labels, each 3 pt clear of its neighbours.
+func TestLogTicksNarrow(t *testing.T) {
+	for _, w := range []vg.Length{60, 125, 400} {
+		for _, lo := range []float64{3, 260.1, 2601, 7001} {
+			for _, decades := range []float64{0.05, 0.1, 0.194, 0.3} {
+				hi := lo * math.Pow(10, decades)
+				var xs []float64
+				var labels []string
+				for _, tk := range (logTicks{W: w, Pt: minFontPt}).Ticks(lo, hi) {
+					if tk.Label != "" {
+						xs = append(xs, math.Log10(tk.Value/lo)/math.Log10(hi/lo)*float64(w))
+						labels = append(labels, tk.Label)
+					}
+				}
+				if len(labels) < 2 {
+					t.Errorf("w=%g [%g, %g]: labels %v", w, lo, hi, labels)
+				}
+				if w < 125 {
+					continue // two labels are kept however short the axis
+				}
+				for i := 1; i < len(xs); i++ {
+					need := (textWidth(labels[i-1], minFontPt)+textWidth(labels[i], minFontPt))/2 + vg.Points(3)
+					if vg.Length(xs[i]-xs[i-1]) < need {
+						t.Errorf("w=%g [%g, %g]: labels %s and %s %.1f pt apart, need %.1f", w, lo, hi, labels[i-1], labels[i], xs[i]-xs[i-1], need.Points())
+					}
+				}
+			}
 		}
 	}
 }

@@ -375,7 +375,7 @@ func drawRampBar(c draw.Canvas, rk *rampKey, n int) {
 		img.Set(x, 0, areaRamp((float64(x)+0.5)/float64(n)))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
-	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
+	p.Add(rampImage{img: img, xmin: lo, ymin: 0, xmax: hi, ymax: 1})
 	if rk.log {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = logTicks{W: c.Max.X - c.Min.X - vg.Points(10), Pt: minFontPt}
@@ -457,8 +457,14 @@ func mapPoints(r *Results, model string) mapMarks {
 	lay := []mapLayer{
 		{"training point", tr, draw.GlyphStyle{Color: ink, Radius: vg.Points(1.6), Shape: draw.RingGlyph{}}, true},
 		{"test point", te, draw.GlyphStyle{Color: ink, Radius: vg.Points(1.9), Shape: draw.PyramidGlyph{}}, true},
-		{"test point omitted at the 10th percentile training presence" + none(om10), om10, draw.GlyphStyle{Color: ink, Radius: vg.Points(4.2), Shape: strokedGlyph{square: false, width: vg.Points(1.2)}}, true},
-		{"test point omitted at the minimum training presence" + none(om1), om1, draw.GlyphStyle{Color: ink, Radius: vg.Points(5.8), Shape: strokedGlyph{square: true, width: vg.Points(1.2)}}, true},
+	}
+	if scored, _ := scoredModels(r); scored[model] {
+		// A model scored on no extent (a constant raster) has no
+		// threshold: its key said "omitted ... (none)", as if it had
+		// omitted no test point.
+		lay = append(lay,
+			mapLayer{"test point omitted at the 10th percentile training presence" + none(om10), om10, draw.GlyphStyle{Color: ink, Radius: vg.Points(4.2), Shape: strokedGlyph{square: false, width: vg.Points(1.2)}}, true},
+			mapLayer{"test point omitted at the minimum training presence" + none(om1), om1, draw.GlyphStyle{Color: ink, Radius: vg.Points(5.8), Shape: strokedGlyph{square: true, width: vg.Points(1.2)}}, true})
 	}
 	if pv := r.Preview; pv != nil {
 		aspect := mapAspect(r)
@@ -757,6 +763,7 @@ func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
 // point (0 off geographic grids).
 func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
 	legC, mapC := splitBottom(cell, legendH)
+	mapC.Max.X -= edgePad
 	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
 	var img image.Image = m.pal
 	if _, raster := cell.Canvas.(*pngCanvas); raster {
@@ -999,8 +1006,8 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		"on the panel's colour bar (dark = nearest), so that any number of them keeps one key. "+
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
-		"Open circles: training points; triangles: test points; large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. "+
-		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", anchors, maxNamed, model, model)
+		"Open circles: training points; triangles: test points; %s"+
+		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", anchors, maxNamed, model, omissionWords(r, model))
 	thinned := 0
 	for _, g := range groups {
 		thinned += mapKeyOf(r, g).thinned
@@ -1009,7 +1016,11 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		c += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
 			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
 	}
-	c += " Outlines are drawn over the training and test points and under the omission marks."
+	if len(marks.layers) > 2 {
+		c += " Outlines are drawn over the training and test points and under the omission marks."
+	} else {
+		c += " Outlines are drawn over the training and test points."
+	}
 	for _, l := range marks.layers {
 		if strings.HasSuffix(l.label, " marks)") {
 			c += fmt.Sprintf(" A layer of more than %d points is drawn with one mark where several fall within 1/%d of the map's width (the key gives both counts).", crowdedMarks, markLattice)
@@ -1026,6 +1037,16 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
 	}
 	return c
+}
+
+// omissionWords says what the maps' large ring and square mark, or, for a
+// model scored on no extent (a constant raster, which has no threshold),
+// that nothing is marked and why.
+func omissionWords(r *Results, model string) string {
+	if scored, _ := scoredModels(r); !scored[model] {
+		return fmt.Sprintf("no omission marks: model %s is scored on no extent (the Scores table says why), so it has no threshold. ", model)
+	}
+	return fmt.Sprintf("large ring and square: test points model %s omits at the 10th percentile and at the minimum training presence. ", model)
 }
 
 // mapKeyPlace is where the map figure's shared key goes: in the free
@@ -1090,18 +1111,32 @@ func fitAspect(p *plot.Plot, c draw.Canvas, west, south, east, north, aspect flo
 // drawSuitabilityBar draws a horizontal colour bar of the suitability
 // ramp from lo to hi in c; the bar's image is n pixels wide.
 func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string, n int) {
+	label := "suitability, model " + model
+	var ticks plot.Ticker
 	if !(hi > lo) {
-		hi = lo + 1
+		// One value on every cell (NewPreview draws it in the ramp's
+		// first colour): one swatch and one tick, rather than a ramp up
+		// to lo + 1 whose values the raster does not hold.
+		ticks = plot.ConstantTicks([]plot.Tick{{Value: lo, Label: strings.Replace(fmtG(lo), "-", "\u2212", 1)}})
+		lo, hi, n = lo-1, lo+1, 1
+		label += " (one value on every cell)"
 	}
 	img := image.NewRGBA(image.Rect(0, 0, n, 1))
 	for x := range n {
-		img.Set(x, 0, suitabilityRamp((float64(x)+0.5)/float64(n)))
+		t := (float64(x) + 0.5) / float64(n)
+		if ticks != nil {
+			t = 0
+		}
+		img.Set(x, 0, suitabilityRamp(t))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
 	p.Add(plotter.NewImage(img, lo, 0, hi, 1))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = lo, hi, 0, 1
+	if ticks != nil {
+		p.X.Tick.Marker = ticks
+	}
 	p.HideY()
-	p.X.Label.Text = "suitability, model " + model
+	p.X.Label.Text = label
 	bc := c
 	da := p.DataCanvas(bc)
 	bc.Min.Y += (da.Max.Y - da.Min.Y) - 3*vg.Millimeter

@@ -321,25 +321,46 @@ type metricsLayout struct {
 }
 
 func layoutMetrics(r *Results) metricsLayout {
-	s := r.Sensitivity
 	panels, maxArea := metricPanels(r)
 	l := metricsLayout{maxArea: maxArea, w: twoColumns}
 	if len(panels) <= 1 {
 		l.w = oneColumn
 	}
+	// The panels that fit are chosen with the key of every panel; the
+	// key drawn lists what they draw, never taller.
+	l.legend = legendRows(metricsLegend(r, panels), l.w)
+	l.legendH = vg.Length(len(l.legend))*legendRowHeight + vg.Points(4)
+	l.panels, l.left = fitMetricPanels(panels, max(1, int((maxHeight-l.legendH)/minMetricRow)))
+	if len(l.left) > 0 {
+		l.legend = legendRows(metricsLegend(r, l.panels), l.w)
+		l.legendH = vg.Length(len(l.legend))*legendRowHeight + vg.Points(4)
+	}
+	return l
+}
+
+// metricsLegend is the key of the panels: each model and null with a
+// marker in at least one of them, models in Sensitivity.ModelNames order
+// and then the nulls, each in the style its index gives. A model or null
+// drawn in no panel (a constant raster, scored on no extent) has no
+// entry: the key listed it beside the lines drawn, as if its line were
+// hidden behind another, while the caption names it as not drawn.
+func metricsLegend(r *Results, panels []metricPanel) []legendItem {
 	var items []legendItem
-	for i, model := range s.ModelNames {
+	for i, model := range r.Sensitivity.ModelNames {
+		if !slices.ContainsFunc(panels, func(pn metricPanel) bool { return len(pn.pts[i]) > 0 }) {
+			continue
+		}
 		ls := lineStyle(modelColor(i), 1, modelDash(i))
 		items = append(items, legendItem{"model " + model, glyphThumb{gs: markerStyle(i), line: &ls}})
 	}
 	for j, nm := range nulls(r) {
+		if !slices.ContainsFunc(panels, func(pn metricPanel) bool { return len(pn.nulls[j]) > 0 }) {
+			continue
+		}
 		ls, gs := nullLineStyle(j)
 		items = append(items, legendItem{ModelLabel(r, nm.Name), glyphThumb{gs: gs, line: &ls}})
 	}
-	l.legend = legendRows(items, l.w)
-	l.legendH = vg.Length(len(l.legend))*legendRowHeight + vg.Points(4)
-	l.panels, l.left = fitMetricPanels(panels, max(1, int((maxHeight-l.legendH)/minMetricRow)))
-	return l
+	return items
 }
 
 // fitMetricPanels keeps at most rows rows of three panels, in their order,

@@ -188,16 +188,18 @@ func gapNulls(r *Results) int {
 func gapDash(j int) []vg.Length { return gapDashes[j%len(gapDashes)] }
 
 // factorKey is the model-minus-null figure's key when several models
-// meet several nulls: one entry per model (its colour and marker) and one
-// per null (its line pattern), rather than one per pair, whose rows
+// meet several nulls: one entry per model (its colour and marker, without
+// a line) and one per null (its line pattern), rather than one per pair, whose rows
 // (21 for 7 models and 3 nulls) pushed the panel off the figure.
 // nullIndex gives each null's index j.
 func factorKey(r *Results, models, nulls map[string]bool, nullIndex map[string]int) []legendItem {
 	var items []legendItem
 	for i, m := range r.Sensitivity.ModelNames {
 		if models[m] {
-			ls := lineStyle(modelColor(i), 1, nil)
-			items = append(items, legendItem{m, glyphThumb{gs: markerStyle(i), line: &ls}})
+			// The marker alone: a line under it (solid, the first
+			// null's pattern) read as that model's lines being solid
+			// against every null.
+			items = append(items, legendItem{m, glyphThumb{gs: markerStyle(i)}})
 		}
 	}
 	ns := make([]string, 0, len(nulls))
@@ -273,6 +275,7 @@ func nullGapFigures(r *Results) []figure {
 		legend := legendRows(items, f.W)
 		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
 		drawLegendRows(top, legend)
+		rest.Max.X -= edgePad
 		p.Draw(rest)
 		return nil
 	}

@@ -133,3 +133,32 @@ func TestNullGapPairsTellApart(t *testing.T) {
 		}
 	}
 }
+
+// TestFactorKeyModelsWithoutLine: when several models meet several nulls,
+// colour and marker tell the model and the line pattern the null, yet
+// each model's key entry drew its marker on a solid line, the first
+// null's pattern, as if that model's lines were solid against every null
+// (a study of six models, a null of the user's and the distance-only
+// null). A model's entry is its marker alone; each null's, its pattern.
+func TestFactorKeyModelsWithoutLine(t *testing.T) {
+	r := gapResults(3, 2)
+	_, items, err := nullGapPlot(r, twoColumns)
+	if err != nil {
+		t.Fatal(err)
+	}
+	models, nullsKeyed := 0, 0
+	for _, it := range items {
+		switch th := it.thumb.(type) {
+		case glyphThumb:
+			models++
+			if th.line != nil {
+				t.Errorf("model %q keyed with a line %v", it.label, th.line.Dashes)
+			}
+		case lineThumb:
+			nullsKeyed++
+		}
+	}
+	if models != 3 || nullsKeyed != 2 {
+		t.Errorf("key of 3 models and 2 nulls: %d model entries, %d null entries", models, nullsKeyed)
+	}
+}

@@ -22,7 +22,12 @@ type chainWaterfall struct {
 	steps  []ChainStep // the steps of the first model (all share them)
 	models []int       // index of each model in Sensitivity.ModelNames, -1 for a null
 	cs     []*ChainSummary
-	marks  []draw.GlyphStyle // each model's marker (colour, shape), set by ringsFigure
+	marks  []draw.GlyphStyle // each model's marker (colour, shape), set by ringsFigures
+	// part and parts number the panels one chain's models are split
+	// over when their value columns do not fit beside one (splitWide):
+	// part 1 of parts, of group models in all; parts is 0 for a whole
+	// panel.
+	part, parts, group int
 }
 
 // rows returns the number of rows: start, one per step, end.
@@ -133,8 +138,29 @@ func drawArrow(c draw.Canvas, ls draw.LineStyle, x0, x1, y vg.Length) {
 		}
 		return
 	}
+	ls.Dashes = arrowDashes(ls.Dashes, (x1-dir*head*0.8-x0)*dir)
 	c.StrokeLine2(ls, x0, y, x1-dir*head*0.8, y)
 	c.FillPolygon(ls.Color, []vg.Point{{X: x1, Y: y}, {X: x1 - dir*head, Y: y + vg.Points(2.6)}, {X: x1 - dir*head, Y: y - vg.Points(2.6)}})
+}
+
+// arrowDashes is the dash pattern d of an arrow whose shaft is shaft
+// long: d itself when the shaft holds three of its periods, else d
+// shrunk until it does, each dash and gap at least 0.5 pt. A short arrow
+// of test records (a shaft of one 2.5 pt dash) drew as solid as a ring's.
+func arrowDashes(d []vg.Length, shaft vg.Length) []vg.Length {
+	var period vg.Length
+	for _, l := range d {
+		period += l
+	}
+	if period <= 0 || shaft >= 3*period {
+		return d
+	}
+	f := shaft / (3 * period)
+	out := make([]vg.Length, len(d))
+	for i, l := range d {
+		out[i] = max(l*f, vg.Points(0.5))
+	}
+	return out
 }
 
 // aucRange is the range of every AUC the chain's panel draws (all its
@@ -207,7 +233,10 @@ func (w *chainWaterfall) rowValue(i, k int) string {
 // title is the panel's title.
 func (s ringSeg) title(models int) string {
 	t := "nested chain " + s.w.cs[0].Chain
-	if len(s.w.cs) < models || s.w.models[0] < 0 {
+	if s.w.parts > 1 {
+		// The markers heading the columns and the key name the models.
+		t += fmt.Sprintf(", %d of %d models (part %d of %d)", len(s.w.cs), s.w.group, s.w.part, s.w.parts)
+	} else if len(s.w.cs) < models || s.w.models[0] < 0 {
 		if s.w.models[0] < 0 {
 			t += ", null" // a null has a panel of its own
 		} else {
@@ -342,6 +371,41 @@ func newRingCols(p ringPage) ringCols {
 	}
 	rc.labelW = min(rc.labelW, ringMaxLabelW)
 	return rc
+}
+
+// ringMinDataW is the least width of a panel's data area (our choice:
+// room for the AUC axis's five tick labels and arrows a reader can tell
+// apart). Twelve models' value columns beside one panel left it 60 pt
+// wide, its tick labels printed over each other (0.650.700.75...).
+const ringMinDataW = 120 * vg.Length(1)
+
+// modelsPerPanel is the most models whose value columns fit right of a
+// data area of ringMinDataW, beside row names of rc's width; at least
+// one.
+func (rc ringCols) modelsPerPanel() int {
+	free := twoColumns - rc.left() - (ringValueGap + rc.kindW + ringColGap) - ringMinDataW
+	return max(1, int(free/rc.colW))
+}
+
+// splitWide returns panels with each panel of more than k models split,
+// in model order, into the fewest panels of at most k models, as even as
+// possible (12 at k = 7: 6 and 6), numbered as parts of their chain.
+func splitWide(panels []*chainWaterfall, k int) []*chainWaterfall {
+	var out []*chainWaterfall
+	for _, w := range panels {
+		n := len(w.cs)
+		if n <= k {
+			out = append(out, w)
+			continue
+		}
+		parts := (n + k - 1) / k
+		for q := range parts {
+			from, to := q*n/parts, (q+1)*n/parts
+			out = append(out, &chainWaterfall{steps: w.steps, models: w.models[from:to], cs: w.cs[from:to],
+				part: q + 1, parts: parts, group: n})
+		}
+	}
+	return out
 }
 
 // ringMaxLabelW is the most room the row names take (our choice, 30% of
@@ -624,6 +688,11 @@ func ringsFigures(r *Results) []figure {
 	if len(panels) == 0 {
 		return nil
 	}
+	// The row names' room is the same however the models are split.
+	perPanel := newRingCols(ringPage{segs: wholePanels(panels)}).modelsPerPanel()
+	whole := len(panels)
+	panels = splitWide(panels, perPanel)
+	split := len(panels) > whole
 	nullIndex := map[string]int{}
 	for j, nm := range nulls(r) {
 		nullIndex[nm.Name] = j
@@ -664,6 +733,9 @@ func ringsFigures(r *Results) []figure {
 		if pi == 0 {
 			f.Note = ringsNote
 			f.Caption = caption
+			if split {
+				f.Caption += fmt.Sprintf(" The value columns of more than %d models do not fit beside one panel: a chain's models are split over panels of at most %d (titled part 1, part 2, ...).", perPanel, perPanel)
+			}
 			f.Caption += ringPagesSentence(pages)
 		} else {
 			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))

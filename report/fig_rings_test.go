@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/recorder"
 )
 
 // syntheticWaterfall is a chain of the given number of rows (at least
@@ -338,6 +339,106 @@ func TestRingPagesSentence(t *testing.T) {
 		for _, d := range tc.dont {
 			if strings.Contains(got, d) {
 				t.Errorf("%d rows, null %v, %d pages: %q says %q", tc.rows, tc.withNull, len(l.pages), got, d)
+			}
+		}
+	}
+}
+
+// TestRingManyModelsSplit: with twelve models the value columns beside a
+// ring_steps panel left its data area about 60 pt wide, and the AUC
+// axis's tick labels were printed over each other (0.650.700.750.800.85;
+// a study of twelve models). A chain's models are now split over panels
+// whose data area keeps ringMinDataW: every model on exactly one panel
+// of the chain, each text inside its page and clear of every other.
+func TestRingManyModelsSplit(t *testing.T) {
+	for _, models := range []int{6, 12, 20} {
+		w := syntheticWaterfall("region", 6, models, 0)
+		var chains []ChainSummary
+		var names []string
+		r := &Results{}
+		for k, cs := range w.cs {
+			chains = append(chains, *cs)
+			names = append(names, cs.Model)
+			r.Models = append(r.Models, Model{Name: fmt.Sprintf("m%d", k)})
+		}
+		r.Sensitivity = &Sensitivity{ModelNames: names, Chains: chains}
+		fs := ringsFigures(r)
+		if len(fs) == 0 {
+			t.Fatalf("%d models: no figure", models)
+		}
+		seen := map[string]int{}
+		for _, f := range fs {
+			svg, err := render(f, "svg")
+			if err != nil {
+				t.Fatal(err)
+			}
+			name := fmt.Sprintf("%d models, %s", models, f.Name)
+			checkTexts(t, name, svg)
+			probs, _ := checkAxisLabels(t, name, svg)
+			for _, p := range probs {
+				t.Error(p)
+			}
+			texts, _ := parseSVG(t, svg)
+			for _, tx := range texts {
+				if strings.HasPrefix(tx.s, "model m") {
+					seen[tx.s]++
+				}
+			}
+		}
+		for _, m := range names {
+			if seen["model "+m] == 0 {
+				t.Errorf("%d models: model %s in no key", models, m)
+			}
+		}
+		split := strings.Contains(fs[0].Caption, "split over panels")
+		if want := models > 6; split != want {
+			t.Errorf("%d models: caption says split %v, want %v: %s", models, split, want, fs[0].Caption)
+		}
+	}
+	// The split itself: as even as possible, in model order, numbered.
+	w := syntheticWaterfall("region", 4, 12, 0)
+	parts := splitWide([]*chainWaterfall{w}, 7)
+	if len(parts) != 2 || len(parts[0].cs) != 6 || len(parts[1].cs) != 6 || parts[1].models[0] != 6 || parts[1].part != 2 || parts[1].parts != 2 {
+		t.Fatalf("12 models at 7 a panel: %d parts", len(parts))
+	}
+	if got := (ringSeg{w: parts[1], to: parts[1].rows()}).title(12); got != "nested chain region, 6 of 12 models (part 2 of 2)" {
+		t.Errorf("title %q", got)
+	}
+}
+
+// TestShortDashedArrow: a step of test records is drawn dashed (2.5 pt
+// dashes, 1.5 pt gaps) and a ring solid, but a short step's shaft held one
+// dash and read as solid (six models on the demo: steps of 0.04 AUC). A
+// dashed shaft now holds at least two periods of its pattern, however
+// short, down to dashes and gaps of 0.5 pt.
+func TestShortDashedArrow(t *testing.T) {
+	dashed := []vg.Length{vg.Points(2.5), vg.Points(1.5)}
+	for _, shaft := range []vg.Length{2, 3.6, 6, 9, 12, 40} {
+		got := arrowDashes(dashed, shaft)
+		var period vg.Length
+		for _, l := range got {
+			period += l
+			if l < vg.Points(0.5)-1e-9 {
+				t.Errorf("shaft %.1f pt: dash or gap %.2f pt, below 0.5", shaft.Points(), l.Points())
+			}
+		}
+		if 2*period > shaft && period > vg.Points(1.0)+1e-9 {
+			t.Errorf("shaft %.1f pt: pattern %v (period %.2f pt) shows fewer than two dashes", shaft.Points(), got, period.Points())
+		}
+		if shaft >= 12 && (got[0] != dashed[0] || got[1] != dashed[1]) {
+			t.Errorf("shaft %.1f pt: a long shaft's pattern changed to %v", shaft.Points(), got)
+		}
+	}
+	if got := arrowDashes(nil, 3); got != nil {
+		t.Errorf("solid arrow given dashes %v", got)
+	}
+	// As drawn: a step of 10 pt (a shaft of 6.8 pt) of test records.
+	rec := &recorder.Canvas{}
+	drawArrow(draw.NewCanvas(rec, 100, 20), lineStyle(ink, 1.4, dashed), 10, 20, 10)
+	for _, a := range rec.Actions {
+		if sd, ok := a.(*recorder.SetLineDash); ok && len(sd.Dashes) > 0 {
+			if period := sd.Dashes[0] + sd.Dashes[1]; 2*period > 6.8 {
+				t.Errorf("10 pt step: shaft dashed %v, fewer than two dashes in 6.8 pt", sd.Dashes)
 			}
 		}
 	}

@@ -69,6 +69,42 @@ func rocShown(es []Extent) ([]Extent, bool) {
 	return out, len(out) < len(es)
 }
 
+// rocCurveExtents returns the extents of es that some model or null is
+// scored on, which have a curve, and the IDs of the others (no test
+// points inside): those have no curve in any panel, so they neither
+// take a tick on the colour bar nor stretch its range, and the thinning
+// past rocMaxCurves never keeps one of them in place of a curve.
+func rocCurveExtents(r *Results, es []Extent) ([]Extent, []string) {
+	scored := map[string]bool{}
+	for _, sc := range r.Scores {
+		if sc.Scored {
+			scored[sc.Extent] = true
+		}
+	}
+	var kept []Extent
+	var none []string
+	for _, e := range es {
+		if scored[e.ID] {
+			kept = append(kept, e)
+		} else {
+			none = append(none, e.ID)
+		}
+	}
+	return kept, none
+}
+
+// noCurveSentence names the extents without a curve in any panel, for
+// the ROC figure's caption; "" for none.
+func noCurveSentence(ids []string) string {
+	switch len(ids) {
+	case 0:
+		return ""
+	case 1:
+		return " No model or null is scored on " + ids[0] + " (the Scores table says why), so it has no curve."
+	}
+	return " No model or null is scored on " + joinList(ids) + " (the Scores table says why), so they have no curve."
+}
+
 func findCurve(r *Results, model, extent string) *Curve {
 	for i := range r.Curves {
 		if r.Curves[i].Model == model && r.Curves[i].Extent == extent {
@@ -108,7 +144,7 @@ func rocFigure(r *Results) figure {
 	if len(r.Settings.E) > 0 {
 		e = r.Settings.E[0]
 	}
-	all := rocExtents(r)
+	all, noCurve := rocCurveExtents(r, rocExtents(r))
 	es, thinned := rocShown(all)
 	amin, amax := 0.0, 0.0
 	if len(es) > 0 {
@@ -124,6 +160,9 @@ func rocFigure(r *Results) figure {
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
 	f.Caption = rocCaption(r, es, len(all), thinned, e)
+	if len(es) > 0 {
+		f.Caption += noCurveSentence(noCurve)
+	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
 	legend := legendRows(rocLegend(r, es, e, diag), f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
@@ -181,7 +220,10 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
 	curves := "one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)" + anchorNote
-	if !rampCurves(es) {
+	switch {
+	case len(es) == 0:
+		curves = "no curve: no model or null is scored on any extent. "
+	case !rampCurves(es):
 		// Only the base region and the whole raster: no colour bar.
 		curves = "one curve per extent: " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
@@ -246,7 +288,8 @@ var rocBand = color.Gray{Y: 225}
 // rocPanel draws model's panel: the null's shade, the partial ROC band at
 // e, the random prediction (diag) and one curve per extent of es on the
 // area ramp from amin to amax (the anchors in their own styles), largest
-// first.
+// first. The panel of a model or null scored on no extent holds only
+// rocUnscoredNote.
 func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
 	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
@@ -265,6 +308,13 @@ func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, pane
 		shade.Color = nullPanelShade
 		shade.LineStyle.Width = 0
 		p.Add(shade)
+	}
+	if scored, _ := scoredModels(r); !scored[model] {
+		// No curve to read against the band and the diagonal: the panel
+		// says why it is empty in the figure itself, not only in the
+		// report's caption (the PNG or PDF travels without it).
+		p.Add(panelNote{s: rocUnscoredNote})
+		return p, nil
 	}
 	if e > 0 {
 		poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
@@ -318,6 +368,21 @@ func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, pane
 	return p, nil
 }
 
+// rocUnscoredNote is written in the empty ROC panel of a model or null
+// scored on no extent (a constant raster), which draws neither the
+// partial ROC band nor the random prediction.
+const rocUnscoredNote = "not scored on any extent"
+
+// panelNote is a text centred in a panel's data area, at the label size.
+type panelNote struct{ s string }
+
+// Plot implements plot.Plotter.
+func (n panelNote) Plot(c draw.Canvas, _ *plot.Plot) {
+	sty := textStyle(minFontPt)
+	sty.XAlign, sty.YAlign = draw.XCenter, draw.YCenter
+	c.FillText(sty, vg.Point{X: (c.Min.X + c.Max.X) / 2, Y: (c.Min.Y + c.Max.Y) / 2}, n.s)
+}
+
 // nullPanelShade fills the data area of a null's ROC panel, lighter than
 // the partial ROC band (grey 225) so that the band still shows on it.
 var nullPanelShade = color.Gray{Y: 240}
@@ -346,7 +411,7 @@ func drawAreaBar(c draw.Canvas, lo, hi float64, marks []float64) {
 		img.Set(0, y, areaRamp(1-(float64(y)+0.5)/n))
 	}
 	p := newPlot("", c.Max.X-c.Min.X)
-	p.Add(plotter.NewImage(img, 0, lo, 1, hi))
+	p.Add(rampImage{img: img, xmin: 0, ymin: lo, xmax: 1, ymax: hi})
 	p.Y.Scale = plot.LogScale{}
 	p.Y.Tick.Marker = logTicks{}
 	p.Y.Min, p.Y.Max = lo, hi

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"image"
 	"image/color"
 	"math"
 	"strings"
@@ -23,6 +24,14 @@ const (
 	// about 230 mm of usable height).
 	maxHeight = 230 * vg.Millimeter
 )
+
+// edgePad is the room kept between a panel that reaches the right side
+// of its figure and the figure's edge: the plot fits the last tick label
+// of its x axis inside its canvas exactly, so a label at the axis's end
+// ("120°W", "10000") ended on the edge itself, its last letter in the
+// PNG's last column of pixels and a hair past the edge in the SVG's
+// rounded coordinates.
+const edgePad = 3 * vg.Length(1)
 
 // Font sizes in points at print size; nothing is smaller than minFontPt.
 const (
@@ -352,6 +361,29 @@ func drawTiles(plots [][]*plot.Plot, dc draw.Canvas) {
 			}
 		}
 	}
+}
+
+// rampImage is a colour bar's image drawn over the data range xmin..xmax,
+// ymin..ymax as it is: its pixels already run evenly along the axis as
+// drawn (the area ramp is even in the logarithm of the area). gonum's
+// Image plotter, on a log axis, warps an image as if its pixels were even
+// in the value, so the ROC and map area bars showed at 1000 km² the colour
+// of about 1,600 km² (a third of the bar away from the curves and outlines
+// they key).
+type rampImage struct {
+	img                    image.Image
+	xmin, ymin, xmax, ymax float64
+}
+
+// Plot implements plot.Plotter.
+func (r rampImage) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	c.DrawImage(vg.Rectangle{Min: vg.Point{X: trX(r.xmin), Y: trY(r.ymin)}, Max: vg.Point{X: trX(r.xmax), Y: trY(r.ymax)}}, r.img)
+}
+
+// DataRange implements plot.DataRanger.
+func (r rampImage) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return r.xmin, r.xmax, r.ymin, r.ymax
 }
 
 // splitTop returns the top strip of height h and the rest of c.

@@ -134,7 +134,7 @@ func TestMetricsCaptionNamesUndrawn(t *testing.T) {
 // coloured by area. Such a figure has no bar and says what its two curves
 // are.
 func TestROCNoBarWithoutRamp(t *testing.T) {
-	r := manyExtents(t, 10)
+	r := scoredEverywhere(manyExtents(t, 10))
 	var keep []Extent
 	for _, e := range r.Extents {
 		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
@@ -157,7 +157,7 @@ func TestROCNoBarWithoutRamp(t *testing.T) {
 		t.Errorf("caption: %s", f.Caption)
 	}
 	// With the other extents back, the bar and its sentence return.
-	r = analyzedSampleWith(t, manyExtents(t, 10))
+	r = analyzedSampleWith(t, scoredEverywhere(manyExtents(t, 10)))
 	if f := rocFigure(r); !strings.Contains(f.Caption, "colour bar") {
 		t.Errorf("caption of a full family lacks the colour bar: %s", f.Caption)
 	}

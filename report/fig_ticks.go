@@ -116,7 +116,7 @@ func (t niceTicks) Ticks(min, max float64) []plot.Tick {
 
 // logTicks labels a log axis at 1, 2 and 5 x 10^k, with unlabelled minor
 // ticks at the other whole multiples; a range too narrow for two such
-// labels falls back to niceTicks. With an axis length W (points) and
+// labels falls back to niceTicks (narrow). With an axis length W (points) and
 // label size Pt set, a 2 or 5 x 10^k label is dropped where it would
 // come within 3 pt of a neighbouring label (labels centred on their
 // ticks), powers of ten first, so crowded labels never touch.
@@ -147,12 +147,42 @@ func (lt logTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	if labelled < 2 {
-		return niceTicks{}.Ticks(min, max)
+		return lt.narrow(min, max)
 	}
 	if lt.W > 0 {
 		lt.spread(ts, min, max)
 	}
 	return ts
+}
+
+// narrow labels a log axis too narrow for two 1, 2 or 5 x 10^k labels
+// (one extent's area, padded by 1.25 on each side) at multiples of a nice
+// step, as niceTicks; with an axis length set, with the most labels (at
+// most maxTicks, at least two) that keep 3 pt apart on the log scale:
+// six labels of four digits on a 125 pt axis (2750 to 4000) touched.
+func (lt logTicks) narrow(min, max float64) []plot.Tick {
+	ts := niceTicks{}.Ticks(min, max)
+	for n := maxTicks - 1; n >= 2 && lt.W > 0 && !lt.apart(ts, min, max); n-- {
+		fewer := niceTicks{N: n}.Ticks(min, max)
+		if len(fewer) < 2 {
+			break // a step that leaves one label: keep two that crowd
+		}
+		ts = fewer
+	}
+	return ts
+}
+
+// apart reports whether every two neighbouring labels of ts (ticks from
+// min to max on a log axis of length lt.W) keep 3 pt apart.
+func (lt logTicks) apart(ts []plot.Tick, min, max float64) bool {
+	x := func(v float64) vg.Length { return vg.Length(math.Log10(v/min)/math.Log10(max/min)) * lt.W }
+	for i := 1; i < len(ts); i++ {
+		gap := x(ts[i].Value) - x(ts[i-1].Value)
+		if gap < (textWidth(ts[i-1].Label, lt.Pt)+textWidth(ts[i].Label, lt.Pt))/2+vg.Points(3) {
+			return false
+		}
+	}
+	return true
 }
 
 // spread drops the labels of ts (ticks from min to max) that would crowd

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"image"
 	"sync"
 
 	"golang.org/x/text/encoding/charmap"
@@ -22,6 +23,44 @@ func (c pdfCanvas) FillString(f font.Face, pt vg.Point, s string) {
 	tempWork.RLock()
 	defer tempWork.RUnlock()
 	c.Canvas.FillString(f, pt, winAnsi(s))
+}
+
+// DrawImage implements vg.Canvas. The PDF writer draws an image's first
+// row at the bottom of its rectangle (its page is flipped to vg's upward
+// y, and the image with it), so every image of a PDF figure came out
+// upside down: the maps' suitability under outlines and points that were
+// not, the ROC area bar's large areas at its foot. The rows are handed
+// over in reverse order.
+func (c pdfCanvas) DrawImage(rect vg.Rectangle, img image.Image) {
+	c.Canvas.DrawImage(rect, flipRows(img))
+}
+
+// flipRows returns img with its rows in reverse order, of the same kind
+// for the images the figures draw (paletted, RGBA), so that the PDF keeps
+// an indexed image indexed; any other kind as RGBA.
+func flipRows(img image.Image) image.Image {
+	b := img.Bounds()
+	switch src := img.(type) {
+	case *image.Paletted:
+		out := image.NewPaletted(b, src.Palette)
+		for y := b.Min.Y; y < b.Max.Y; y++ {
+			copy(out.Pix[out.PixOffset(b.Min.X, b.Max.Y-1-(y-b.Min.Y)):][:b.Dx()], src.Pix[src.PixOffset(b.Min.X, y):][:b.Dx()])
+		}
+		return out
+	case *image.RGBA:
+		out := image.NewRGBA(b)
+		for y := b.Min.Y; y < b.Max.Y; y++ {
+			copy(out.Pix[out.PixOffset(b.Min.X, b.Max.Y-1-(y-b.Min.Y)):][:4*b.Dx()], src.Pix[src.PixOffset(b.Min.X, y):][:4*b.Dx()])
+		}
+		return out
+	}
+	out := image.NewRGBA(b)
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			out.Set(x, b.Max.Y-1-(y-b.Min.Y), img.At(x, y))
+		}
+	}
+	return out
 }
 
 // tempWork is held (read-locked) while the package may have a folder of
