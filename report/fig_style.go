@@ -149,20 +149,25 @@ var ink = color.RGBA{26, 26, 26, 255}
 var colorWhite = color.RGBA{255, 255, 255, 255}
 
 // dashes are distinct line patterns so that lines stay apart in greyscale.
+// None is dotted: short dots are the nulls' pattern (nullLineStyle), and a
+// model drawn dotted read as a null in a greyscale print.
 var dashes = [][]vg.Length{
 	nil,
 	{vg.Points(5), vg.Points(2.5)},
-	{vg.Points(1.2), vg.Points(1.8)},
+	{vg.Points(5), vg.Points(2), vg.Points(5), vg.Points(2), vg.Points(1.2), vg.Points(2)},
 	{vg.Points(7), vg.Points(2.5), vg.Points(1.2), vg.Points(2.5)},
 	{vg.Points(2.5), vg.Points(2.5)},
 	{vg.Points(9), vg.Points(3)},
 	{vg.Points(5), vg.Points(2), vg.Points(1.2), vg.Points(2), vg.Points(1.2), vg.Points(2)},
 }
 
-// glyphs are distinct marker shapes, one per model.
+// glyphs are distinct marker shapes, one per model: first the five the
+// nulls never take (filled circle, triangle and square, cross, plus), then
+// the hollow ones they do (nullLineStyle), so that up to five models are
+// told from any null by marker alone in a greyscale print.
 var glyphs = []draw.GlyphDrawer{
-	draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.PyramidGlyph{},
-	draw.CrossGlyph{}, draw.PlusGlyph{}, draw.RingGlyph{}, draw.BoxGlyph{},
+	draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{}, draw.CrossGlyph{},
+	draw.PlusGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.RingGlyph{},
 }
 
 // modelColors are the models' colours: the "muted" qualitative scheme

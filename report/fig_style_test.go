@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"image/color"
 	"testing"
+
+	"gonum.org/v1/plot/vg"
 )
 
 // TestModelStylesDistinct: every model up to len(modelColors) (nine, the
@@ -52,6 +54,41 @@ func TestModelStylesDistinct(t *testing.T) {
 			ls, gs := nullLineStyle(k)
 			if rgb(modelColor(i)) == rgb(ls.Color) || rgb(modelColor(i)) == rgb(gs.Color) {
 				t.Errorf("model %d drawn in the colour of null %d", i+1, k+1)
+			}
+		}
+	}
+}
+
+// TestModelsApartFromNullsInGrey: in a greyscale print colour is gone, so
+// a model must differ from every null by its line and, for the first five
+// models, by its marker too. The third model was drawn dotted (1.2 pt
+// dots), as the nulls are, with the hollow square of the third and fourth
+// null (an audit of the figures with six models and two nulls).
+func TestModelsApartFromNullsInGrey(t *testing.T) {
+	// dotted: every dash of the pattern no longer than 2 pt.
+	dotted := func(d []vg.Length) bool {
+		if len(d) == 0 {
+			return false
+		}
+		for i := 0; i < len(d); i += 2 {
+			if d[i] > vg.Points(2) {
+				return false
+			}
+		}
+		return true
+	}
+	if ls, _ := nullLineStyle(0); !dotted(ls.Dashes) {
+		t.Fatalf("the nulls' pattern %v is not dotted: the check below tests nothing", ls.Dashes)
+	}
+	for i := range len(dashes) {
+		if dotted(modelDash(i)) {
+			t.Errorf("model %d is drawn dotted (%v), as the nulls are", i+1, modelDash(i))
+		}
+	}
+	for i := range 5 {
+		for k := range 6 {
+			if _, gs := nullLineStyle(k); fmt.Sprintf("%T", gs.Shape) == fmt.Sprintf("%T", modelGlyph(i)) {
+				t.Errorf("model %d takes the marker %T of null %d", i+1, modelGlyph(i), k+1)
 			}
 		}
 	}
