@@ -132,8 +132,12 @@ func mapGroups(r *Results) []mapGroup {
 			gs = append(gs, mapGroup{title: "nested chain " + ch, members: byChain[ch]})
 		}
 	}
-	if m := byChain[""]; len(m) > 0 {
+	if m := byChain[""]; len(m) > 1 {
 		gs = append(gs, mapGroup{title: "extents in no chain", members: m})
+	} else if len(m) == 1 {
+		// One extent alone (the base region of a family with no other
+		// usable extent, say) is titled by its id, not as a group.
+		gs = append(gs, mapGroup{title: r.Extents[m[0]].ID, members: m})
 	}
 	return gs
 }

@@ -308,3 +308,34 @@ func TestGridAxisUnit(t *testing.T) {
 		t.Errorf("gridTicks{1000, 4} on 2.5e6..7e6 = %v, want %v", got, want)
 	}
 }
+
+// TestMapLoneExtentTitle: a map panel holding one extent in no chain (a
+// study whose region covers the raster and has no buffers: the base
+// region alone) is titled by its id; it was titled "extents in no chain",
+// as if it held several (found by the figure audit). Two or more keep
+// the group's title.
+func TestMapLoneExtentTitle(t *testing.T) {
+	r := manyExtents(t, 10)
+	var base, whole Extent
+	for _, e := range r.Extents {
+		switch e.Kind {
+		case vocab.KindBase:
+			base = e
+		case vocab.KindWholeRaster:
+			whole = e
+		}
+	}
+	if base.ID == "" || whole.ID == "" {
+		t.Fatalf("base %+v, whole %+v", base, whole)
+	}
+	// In no chain, as when nothing else nests them.
+	base.Chain, whole.Chain = "", ""
+	r.Extents = []Extent{base}
+	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != base.ID {
+		t.Errorf("one extent: groups %+v, want one titled %q", gs, base.ID)
+	}
+	r.Extents = []Extent{base, whole}
+	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != "extents in no chain" {
+		t.Errorf("two extents: groups %+v, want one titled %q", gs, "extents in no chain")
+	}
+}
