@@ -136,8 +136,8 @@ func mapGroups(r *Results) []mapGroup {
 		gs = append(gs, mapGroup{title: "extents in no chain", members: m})
 	} else if len(m) == 1 {
 		// One extent alone (the base region of a family with no other
-		// usable extent, say) is titled by its id, not as a group.
-		gs = append(gs, mapGroup{title: r.Extents[m[0]].ID, members: m})
+		// usable extent, say), which its key names.
+		gs = append(gs, mapGroup{title: "extent in no chain", members: m})
 	}
 	return gs
 }

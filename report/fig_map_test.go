@@ -331,8 +331,8 @@ func TestMapLoneExtentTitle(t *testing.T) {
 	// In no chain, as when nothing else nests them.
 	base.Chain, whole.Chain = "", ""
 	r.Extents = []Extent{base}
-	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != base.ID {
-		t.Errorf("one extent: groups %+v, want one titled %q", gs, base.ID)
+	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != "extent in no chain" {
+		t.Errorf("one extent: groups %+v, want one titled %q", gs, "extent in no chain")
 	}
 	r.Extents = []Extent{base, whole}
 	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != "extents in no chain" {

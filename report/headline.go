@@ -384,6 +384,13 @@ func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi
 			}
 			rng = fmt.Sprintf("was %s on %s (to three decimals%s)", f3(sp.Min), allOfNoun(sp.N, "extent"), below)
 		}
+		if mv.Verdict == JudgementRobust && sp.Max-sp.Min > mv.Tolerance {
+			// A range wider than the tolerance beside "robust" reads as a
+			// contradiction: the range compares extents on the test points
+			// each holds, the verdict each one's paired difference from the
+			// reference on the points both hold.
+			rng += fmt.Sprintf(" (wider than the tolerance: the verdict rests on each extent's paired difference from %s, not on this spread)", s.BaseExtent)
+		}
 		parts = append(parts, fmt.Sprintf("AUC of %s %s and is %s", m, rng, verdictPhrase(mv)))
 	}
 	if len(parts) == 0 {
