@@ -33,7 +33,7 @@ echo "== go test"
 # Test artefacts (the report screenshot from the browser test) are kept here.
 export AREASWEEP_ARTEFACTS="$PWD/test-artefacts"
 mkdir -p "$AREASWEEP_ARTEFACTS"
-go test -count=1 ./...
+go test -count=1 -timeout 30m ./...
 echo "test artefacts: $AREASWEEP_ARTEFACTS"
 echo "== go test -race (the packages whose work runs on several goroutines)"
 # Outputs must be byte-identical on any number of cores: the race detector
@@ -41,4 +41,4 @@ echo "== go test -race (the packages whose work runs on several goroutines)"
 # pass and the null's field, the family build, the pipeline's stages, the
 # batch scheduler, the output folder's guard, the shard files). -short
 # keeps it to about a minute and a half on 2 cores.
-go test -race -short -count=1 ./cmd/internal/pass/ ./extent/nullmodel/ ./extent/ ./cmd/internal/pipeline/ ./cmd/internal/batchrun/ ./cmd/internal/batch/ ./cmd/internal/outdir/ ./cmd/internal/shardfile/
+go test -race -short -count=1 -timeout 30m ./cmd/internal/pass/ ./extent/nullmodel/ ./extent/ ./cmd/internal/pipeline/ ./cmd/internal/batchrun/ ./cmd/internal/batch/ ./cmd/internal/outdir/ ./cmd/internal/shardfile/
