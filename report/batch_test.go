@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -831,5 +832,52 @@ func TestBatchSmallDifferences(t *testing.T) {
 	r.Effect, r.EffectLow, r.EffectHigh = 0.05, 0.0201, 0.08
 	if got, want := pageRowOf(r, "").Interval, "+0.0201 to +0.080"; got != want {
 		t.Errorf("interval against the tolerance %q, want %q", got, want)
+	}
+}
+
+// TestSummaryDropsStaleFigure reruns a batch into the same folder: the
+// first summary draws the extent effects, the second has none to draw
+// (every study failed this time). The first summary's figure must go with
+// it, or summary_figures would show studies and effects the new summary
+// does not hold; a file of the user's in summary_figures stays, and with
+// it the folder.
+func TestSummaryDropsStaleFigure(t *testing.T) {
+	first, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	none, err := Summarize([]StudyResult{{ID: "alpha", Err: errors.New("occurrences.csv line 3: bad longitude")}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, keep := range []bool{false, true} {
+		dir := t.TempDir()
+		figDir := filepath.Join(dir, SummaryFigures)
+		if err := WriteSummary(dir, first); err != nil {
+			t.Fatal(err)
+		}
+		mine := filepath.Join(figDir, "my_notes.txt")
+		if keep {
+			if err := os.WriteFile(mine, []byte("mine"), 0o666); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := WriteSummary(dir, none); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range figureFormats {
+			if _, err := os.Stat(filepath.Join(figDir, EffectFigure+"."+f)); !errors.Is(err, fs.ErrNotExist) {
+				t.Errorf("user file %v: the first summary's %s.%s is still there (stat: %v)", keep, EffectFigure, f, err)
+			}
+		}
+		_, err := os.Stat(mine)
+		switch {
+		case keep && err != nil:
+			t.Errorf("the user's file in %s is gone: %v", SummaryFigures, err)
+		case !keep:
+			if _, err := os.Stat(figDir); !errors.Is(err, fs.ErrNotExist) {
+				t.Errorf("the emptied %s is still there (stat: %v)", SummaryFigures, err)
+			}
+		}
 	}
 }
