@@ -91,7 +91,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 			}
 		}
 		secs = append(secs, textSection{Heading: "Failed studies",
-			Paragraphs: []string{fmt.Sprintf("%d stud%s gave no usable results (each line says why: a failure, or results that no longer match the table) and %s left out of every count above:", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])},
+			Paragraphs: []string{s.failedLead()},
 			List:       failed})
 	}
 	refs := []string{delong1988}
@@ -100,6 +100,17 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	refs = append(refs, student1908)
 	return append(secs, textSection{Heading: "References", List: refs})
+}
+
+// failedLead opens the list of failed studies; with no study counted
+// there is no count above to leave them out of.
+func (s *BatchSummary) failedLead() string {
+	c := s.Counts
+	lead := fmt.Sprintf("%d stud%s gave no usable results (each line says why: a failure, or results that no longer match the table)", c.Failed, ies(c.Failed))
+	if c.Succeeded == 0 {
+		return lead + ":"
+	}
+	return lead + fmt.Sprintf(" and %s left out of every count above:", map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 }
 
 // runSentence opens the methods text: how the studies that gave usable
@@ -125,15 +136,35 @@ func (s *BatchSummary) runSentence(sw string) string {
 // apart).
 func (s *BatchSummary) CountSentence() string {
 	c := s.Counts
-	if c.Succeeded == 0 {
+	switch {
+	case c.Succeeded == 0 && c.Studies == 1:
+		return "The one study gave no usable results."
+	case c.Succeeded == 0:
 		return fmt.Sprintf("None of the %d stud%s gave usable results.", c.Studies, ies(c.Studies))
 	}
 	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d%s.",
 		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.Undetermined))
+	if c.Succeeded == 1 {
+		// "1 of 1 study, robust for 0 and undetermined for 0" counts
+		// what a single verdict says in one word.
+		out = "AUC was " + oneVerdict(c) + " for the one study" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] +
+			notJudgedTail(c.NotJudged, c.Undetermined) + "."
+	}
 	if c.Failed > 0 {
 		out += fmt.Sprintf(" %d further stud%s gave no usable results and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 	}
 	return out
+}
+
+// oneVerdict is the verdict of the one study with results.
+func oneVerdict(c BatchCounts) string {
+	switch {
+	case c.Sensitive == 1:
+		return "extent-sensitive"
+	case c.Robust == 1:
+		return "robust"
+	}
+	return "undetermined"
 }
 
 // toleranceSentence names the tolerances used.

@@ -606,15 +606,30 @@ func TestSummaryEdgeSentences(t *testing.T) {
 	}{
 		{name: "one study", studies: []StudyResult{{ID: "only", Results: one()}},
 			want: []string{"The one study of the batch was run with areasweep test into its own folder",
-				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)"},
-			not: []string{"Each of the 1 study", "1 of 1 study-model pairs"}},
+				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)",
+				"AUC was extent-sensitive for the one study."},
+			not: []string{"Each of the 1 study", "1 of 1 study-model pairs", "1 of 1 study,"}},
+		// A single study's verdict is one word, not "1 of 1 study, robust
+		// for 0 and undetermined for 0"; a table of one failed study is not
+		// "None of the 1 study", nor left out of counts that are not there.
+		{name: "one study of two with results", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
+			want: []string{"AUC was extent-sensitive for the one study that gave usable results. 1 further study gave no usable results and is not counted.",
+				"and is left out of every count above:"},
+			not: []string{"1 of 1 study,"}},
+		{name: "one study, not judged", studies: []StudyResult{{ID: "flat", Results: nothingScored()}},
+			want: []string{"AUC was undetermined for the one study, which was not judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
+			not:  []string{"1 of 1 study,", "robust for 0"}},
+		{name: "the one study failed", studies: []StudyResult{{ID: "z1", Err: errors.New("bad longitude")}},
+			want: []string{"The one study gave no usable results.", "1 study gave no usable results (each line says why: a failure, or results that no longer match the table):"},
+			not:  []string{"None of the 1 study", "left out of every count above"}},
 		{name: "a failed study", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
 			want: []string{"Each of the 2 studies of the batch that gave usable results was run with areasweep test into its own folder",
 				"1 further study gave no usable results and is not counted."},
 			not: []string{"Each of the 3 studies"}},
 		{name: "every study failed", studies: []StudyResult{{ID: "a", Err: errors.New("x")}, {ID: "b", Err: errors.New("y")}},
-			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave usable results."},
-			not:  []string{"Each of the 2 studies"}},
+			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave usable results.",
+				"2 studies gave no usable results (each line says why: a failure, or results that no longer match the table):"},
+			not: []string{"Each of the 2 studies", "left out of every count above"}},
 		// 427570.46 and 427610.0 km² both print as 428,000 (fmtArea's three
 		// significant digits): the span would name two ends that read alike.
 		{name: "base extents of one area", studies: []StudyResult{{ID: "a", Results: withArea(one(), 427570.46)}, {ID: "b", Results: withArea(one(), 427610.0)}},
