@@ -716,7 +716,9 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 // showed nothing of it in the batch's summary, so among dozens of studies
 // it went unnoticed. summary.csv gives each row its study's number of
 // warnings, and summary.html lists the warnings of each study that has
-// any (escaped), and nothing for a batch without warnings.
+// any (escaped), and nothing for a batch without warnings. One study
+// that warned, or one failed study, is spoken of as one (the sections
+// said "These studies ... their runs warned" of one).
 func TestSummaryWarnings(t *testing.T) {
 	batch := handBatch()
 	batch[1].Results.Warnings = []string{"the base extent holds none of the test points: <check the region>", "2 duplicate presence(s) thinned"}
@@ -752,6 +754,25 @@ func TestSummaryWarnings(t *testing.T) {
 	}
 	if bytes.Contains(page, []byte("<strong>alpha</strong> (")) {
 		t.Error("summary.html lists alpha, which has no warnings")
+	}
+	// One study warned and one failed (delta): each section speaks of one
+	// study, not "These studies ... their runs".
+	for _, want := range []string{"<p>This study finished, and its numbers are in every count, but its run warned:",
+		"<p>This study gave no usable results and is left out of every count. Fix the cause its line names"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("summary.html lacks %q", want)
+		}
+	}
+	if bytes.Contains(page, []byte("These studies")) {
+		t.Error("summary.html says 'These studies' of one study")
+	}
+	batch[0].Results.Warnings = []string{"1 duplicate presence(s) thinned"}
+	two, err := Summarize(batch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if page, err := two.page(nil); err != nil || !bytes.Contains(page, []byte("<p>These studies finished, and their numbers are in every count, but their runs warned:")) {
+		t.Errorf("two studies that warned are not 'These studies' (err %v)", err)
 	}
 	quiet, err := Summarize(handBatch())
 	if err != nil {
