@@ -150,21 +150,38 @@ func (s *BatchSummary) CountSentence() string {
 		out = "AUC was " + oneVerdict(c) + " for the one study" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] +
 			notJudgedTail(c.NotJudged, c.Undetermined) + "."
 	}
+	if v, ok := sharedVerdict(c); ok && c.Succeeded == 2 {
+		// Not "for 0 of 2 studies, robust for 2 and undetermined for 0".
+		tail := notJudgedTail(c.NotJudged, c.Undetermined)
+		if c.NotJudged == 2 {
+			tail = strings.Replace(tail, ", none of which was judged", ", neither of which was judged", 1)
+		}
+		out = "AUC was " + v + " for both studies" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] + tail + "."
+	}
 	if c.Failed > 0 {
 		out += fmt.Sprintf(" %d further stud%s gave no usable results and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 	}
 	return out
 }
 
+// sharedVerdict is the verdict every study with results shares, and
+// whether they share one.
+func sharedVerdict(c BatchCounts) (string, bool) {
+	switch c.Succeeded {
+	case c.Sensitive:
+		return "extent-sensitive", true
+	case c.Robust:
+		return "robust", true
+	case c.Undetermined:
+		return "undetermined", true
+	}
+	return "", false
+}
+
 // oneVerdict is the verdict of the one study with results.
 func oneVerdict(c BatchCounts) string {
-	switch {
-	case c.Sensitive == 1:
-		return "extent-sensitive"
-	case c.Robust == 1:
-		return "robust"
-	}
-	return "undetermined"
+	v, _ := sharedVerdict(c)
+	return v
 }
 
 // toleranceSentence names the tolerances used.
