@@ -77,7 +77,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	if c.NullPairs > 0 {
 		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
+			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew))+s.noNullSentence())
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -332,6 +332,26 @@ func nullTail(tooFew, undefined int) string {
 		out += fmt.Sprintf("; on %d no difference could be formed", undefined)
 	}
 	return out
+}
+
+// noNullSentence names the study-model pairs that have no comparison
+// with a null (the study scored none, as with no-distance-null, or the
+// model was not compared on the base extent), which the null counts
+// leave out: without it "0 of 1 study-model pair" of a batch of two pairs
+// would not say where the other went. "" when every pair has one.
+func (s *BatchSummary) noNullSentence() string {
+	var pairs []string
+	for _, r := range s.Rows {
+		if r.Null == "" {
+			pairs = append(pairs, r.Study+" ("+r.Model+")")
+		}
+	}
+	if len(pairs) == 0 {
+		return ""
+	}
+	n := len(pairs)
+	return fmt.Sprintf(" %d study-model pair%s %s no comparison with a null and %s not counted there: %s.",
+		n, Plural(n), map[bool]string{true: "has", false: "have"}[n == 1], map[bool]string{true: "is", false: "are"}[n == 1], joinList(pairs))
 }
 
 // nullKindTail names the nulls behind the null counts when they are not

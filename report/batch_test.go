@@ -619,6 +619,15 @@ func TestSummaryEdgeSentences(t *testing.T) {
 		{name: "one study, not judged", studies: []StudyResult{{ID: "flat", Results: nothingScored()}},
 			want: []string{"AUC was undetermined for the one study, which was not judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
 			not:  []string{"1 of 1 study,", "robust for 0"}},
+		// A study that scored no null (no-distance-null) left its pair out
+		// of the null counts without a word: "0 of 1 study-model pair" of a
+		// batch of two pairs.
+		{name: "a study without a null", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "nonull", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, points: 12})}},
+			want: []string{"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null), within noise of it for 0 and below it for 0. " +
+				"1 study-model pair has no comparison with a null and is not counted there: nonull (m1)."}},
+		{name: "every pair with a null", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}},
+			not: []string{"no comparison with a null"}},
 		// Two studies of one verdict are "both", not "0 of 2 ... 2 ... 0".
 		{name: "two studies not judged", studies: []StudyResult{{ID: "a", Results: nothingScored()}, {ID: "b", Results: nothingScored()}},
 			want: []string{"AUC was undetermined for both studies, neither of which was judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
