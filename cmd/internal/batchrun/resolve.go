@@ -64,6 +64,12 @@ func resolve(o *Options) ([]*study, error) {
 		st.inputs = check
 		studies = append(studies, st)
 	}
+	for _, row := range b.Refused {
+		bad := func(column string, err error) *inputs.BatchError {
+			return &inputs.BatchError{File: b.File, Line: row.Line, Column: column, Study: row.ID, Err: err}
+		}
+		errs = append(errs, refusedProblems(row, filepath.Join(out, "refused"), bad)...)
+	}
 	if len(errs) > 0 {
 		inputs.SortBatchErrors(errs)
 		return nil, errs
@@ -117,12 +123,47 @@ func rowOptions(row *inputs.Study, out string) pipeline.Options {
 // problem that names no column, or one already named, ends the list (its
 // default would only repeat or hide it).
 func rowProblems(row *inputs.Study, out string, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
+	return settingProblems(row, out, nil, bad)
+}
+
+// placeholders stand in for a refused row's required keys that were
+// refused or left out (already reported), so that the row's other
+// settings are checked too rather than stopping at "no model given".
+// They are only checked, never run or opened.
+var placeholders = map[string]any{"model": []string{"m=refused"}, "occurrences": "refused", "region": "refused"}
+
+// refusedProblems lists the problems of a row the table's reading already
+// refused (a cell that does not read, a missing required key) that its
+// other settings give: a row with iterations "abc" and e 1.5 named the
+// first only, so the second came to light only once it was fixed. The
+// keys already reported are not reported again.
+func refusedProblems(row inputs.RefusedStudy, out string, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
+	left := inputs.Study{}
+	if row.Study != nil {
+		maps.Copy(left, *row.Study)
+	}
+	named := maps.Clone(row.Reported)
+	for k, v := range placeholders {
+		if _, set := left[k]; !set || named[k] {
+			left[k] = v
+			named[k] = true
+		}
+	}
+	return settingProblems(&left, out, named, bad)
+}
+
+// settingProblems is rowProblems with the keys in named already reported:
+// a problem on one of them ends the list unreported.
+func settingProblems(row *inputs.Study, out string, named map[string]bool, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
 	var errs inputs.BatchErrors
 	left := inputs.Study{}
 	if row != nil {
 		maps.Copy(left, *row)
 	}
-	named := map[string]bool{}
+	named = maps.Clone(named)
+	if named == nil {
+		named = map[string]bool{}
+	}
 	for range len(inputs.StudyKeys()) + 1 {
 		po := rowOptions(&left, out)
 		err := po.Validate()
