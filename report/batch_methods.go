@@ -150,13 +150,18 @@ func (s *BatchSummary) CountSentence() string {
 		out = "AUC was " + oneVerdict(c) + " for the one study" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] +
 			notJudgedTail(c.NotJudged, c.Undetermined) + "."
 	}
-	if v, ok := sharedVerdict(c); ok && c.Succeeded == 2 {
-		// Not "for 0 of 2 studies, robust for 2 and undetermined for 0".
+	if v, ok := sharedVerdict(c); ok && c.Succeeded >= 2 {
+		// Not "for 0 of 2 studies, robust for 2 and undetermined for 0",
+		// nor "for 12 of 12 studies, robust for 0 and undetermined for 0".
 		tail := notJudgedTail(c.NotJudged, c.Undetermined)
-		if c.NotJudged == 2 {
-			tail = strings.Replace(tail, ", none of which was judged", ", neither of which was judged", 1)
+		all := fmt.Sprintf("all %d studies", c.Succeeded)
+		if c.Succeeded == 2 {
+			all = "both studies"
+			if c.NotJudged == 2 {
+				tail = strings.Replace(tail, ", none of which was judged", ", neither of which was judged", 1)
+			}
 		}
-		out = "AUC was " + v + " for both studies" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] + tail + "."
+		out = "AUC was " + v + " for " + all + map[bool]string{true: " that gave usable results"}[c.Failed > 0] + tail + "."
 	}
 	if c.Failed > 0 {
 		out += fmt.Sprintf(" %d further stud%s gave no usable results and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
@@ -242,9 +247,10 @@ func (s *BatchSummary) effectSentence() string {
 	if len(mags)%2 == 0 {
 		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
-	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s%s, on %d common test point%s)", signedSmall(r.Effect), r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
+	place := func(r BatchRow) string {
+		return fmt.Sprintf("study %s, model %s, extent %s%s, on %d common test point%s", r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
 	}
+	where := func(r BatchRow) string { return signedSmall(r.Effect) + " (" + place(r) + ")" }
 	lower := "AUC lower on the extent than on the base extent"
 	if slices.ContainsFunc(defined, func(r BatchRow) bool { return effectReference(r) != "" }) {
 		lower = "AUC lower on the extent than on its study's base extent, or on the reference extent that stands in for it"
@@ -260,11 +266,17 @@ func (s *BatchSummary) effectSentence() string {
 	if zero > 0 {
 		zeroText = fmt.Sprintf(", %d zero", zero)
 	}
-	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (%s, on their common test points)%s and %d positive, "+
+	span := fmt.Sprintf("The extent effects ran from %s to %s", where(lo), where(hi))
+	if signedSmall(lo.Effect) == signedSmall(hi.Effect) {
+		// "ran from +0.078 (...) to +0.078 (...)" reads as a misprint:
+		// the two ends print alike.
+		span = fmt.Sprintf("The extent effects all read %s as printed here (the smallest: %s; the largest: %s)", signedSmall(lo.Effect), place(lo), place(hi))
+	}
+	return fmt.Sprintf("%s: %d negative (%s, on their common test points)%s and %d positive, "+
 		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
 		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
 		"a description of these studies, not an estimate for others.",
-		where(lo), where(hi), neg, lower, zeroText, pos, smallPositive(med), len(defined), len(studies), ies(len(studies)), fewText)
+		span, neg, lower, zeroText, pos, smallPositive(med), len(defined), len(studies), ies(len(studies)), fewText)
 }
 
 // effectReference names the extent a row's extent effect is taken from

@@ -628,6 +628,13 @@ func TestSummaryEdgeSentences(t *testing.T) {
 				"1 study-model pair has no comparison with a null and is not counted there: nonull (m1)."}},
 		{name: "every pair with a null", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}},
 			not: []string{"no comparison with a null"}},
+		// Three studies of one verdict and one effect to three decimals:
+		// "for all 3 studies", and the effects do not "run from +0.080 to
+		// +0.080".
+		{name: "three alike", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "c", Results: one()}},
+			want: []string{"AUC was extent-sensitive for all 3 studies.",
+				"The extent effects all read +0.080 as printed here (the smallest: study a, model m1, extent wide, on 12 common test points; the largest: study c, model m1, extent wide, on 12 common test points): 0 negative"},
+			not: []string{"of 3 studies", "ran from +0.080"}},
 		// Two studies of one verdict are "both", not "0 of 2 ... 2 ... 0".
 		{name: "two studies not judged", studies: []StudyResult{{ID: "a", Results: nothingScored()}, {ID: "b", Results: nothingScored()}},
 			want: []string{"AUC was undetermined for both studies, neither of which was judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
