@@ -4,6 +4,7 @@ import (
 	"cmp"
 	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -617,6 +618,31 @@ func WriteSummary(dir string, s *BatchSummary) error {
 	files = append(files, outfile.File{Path: filepath.Join(dir, SummaryHTML), Data: page})
 	if err := outfile.WriteAll(files, 0o666); err != nil {
 		return fmt.Errorf("report: %w", err)
+	}
+	if svg == nil {
+		return removeStaleFigure(dir)
+	}
+	return nil
+}
+
+// removeStaleFigure removes the extent-effect figure an earlier summary
+// wrote into dir, once a summary without a figure (no study with a
+// difference from its base extent) has replaced it: left there, it would
+// draw studies and effects the new summary no longer holds. Only the
+// figure's own files go, and SummaryFigures only when that leaves it
+// empty; files the batch did not write stay.
+func removeStaleFigure(dir string) error {
+	figDir := filepath.Join(dir, SummaryFigures)
+	for _, format := range figureFormats {
+		p := filepath.Join(figDir, EffectFigure+"."+format)
+		if err := os.Remove(p); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return fmt.Errorf("report: remove the previous summary's figure %s: %w", p, err)
+		}
+	}
+	if left, err := os.ReadDir(figDir); err == nil && len(left) == 0 {
+		if err := os.Remove(figDir); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return fmt.Errorf("report: remove %s: %w", figDir, err)
+		}
 	}
 	return nil
 }

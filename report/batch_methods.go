@@ -77,7 +77,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	if c.NullPairs > 0 {
 		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew)))
+			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew))+s.noNullSentence())
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -91,7 +91,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 			}
 		}
 		secs = append(secs, textSection{Heading: "Failed studies",
-			Paragraphs: []string{fmt.Sprintf("%d stud%s gave no usable results (each line says why: a failure, or results that no longer match the table) and %s left out of every count above:", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])},
+			Paragraphs: []string{s.failedLead()},
 			List:       failed})
 	}
 	refs := []string{delong1988}
@@ -100,6 +100,17 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	refs = append(refs, student1908)
 	return append(secs, textSection{Heading: "References", List: refs})
+}
+
+// failedLead opens the list of failed studies; with no study counted
+// there is no count above to leave them out of.
+func (s *BatchSummary) failedLead() string {
+	c := s.Counts
+	lead := fmt.Sprintf("%d stud%s gave no usable results (each line says why: a failure, or results that no longer match the table)", c.Failed, ies(c.Failed))
+	if c.Succeeded == 0 {
+		return lead + ":"
+	}
+	return lead + fmt.Sprintf(" and %s left out of every count above:", map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 }
 
 // runSentence opens the methods text: how the studies that gave usable
@@ -125,15 +136,57 @@ func (s *BatchSummary) runSentence(sw string) string {
 // apart).
 func (s *BatchSummary) CountSentence() string {
 	c := s.Counts
-	if c.Succeeded == 0 {
+	switch {
+	case c.Succeeded == 0 && c.Studies == 1:
+		return "The one study gave no usable results."
+	case c.Succeeded == 0:
 		return fmt.Sprintf("None of the %d stud%s gave usable results.", c.Studies, ies(c.Studies))
 	}
 	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d%s.",
 		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.Undetermined))
+	if c.Succeeded == 1 {
+		// "1 of 1 study, robust for 0 and undetermined for 0" counts
+		// what a single verdict says in one word.
+		out = "AUC was " + oneVerdict(c) + " for the one study" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] +
+			notJudgedTail(c.NotJudged, c.Undetermined) + "."
+	}
+	if v, ok := sharedVerdict(c); ok && c.Succeeded >= 2 {
+		// Not "for 0 of 2 studies, robust for 2 and undetermined for 0",
+		// nor "for 12 of 12 studies, robust for 0 and undetermined for 0".
+		tail := notJudgedTail(c.NotJudged, c.Undetermined)
+		all := fmt.Sprintf("all %d studies", c.Succeeded)
+		if c.Succeeded == 2 {
+			all = "both studies"
+			if c.NotJudged == 2 {
+				tail = strings.Replace(tail, ", none of which was judged", ", neither of which was judged", 1)
+			}
+		}
+		out = "AUC was " + v + " for " + all + map[bool]string{true: " that gave usable results"}[c.Failed > 0] + tail + "."
+	}
 	if c.Failed > 0 {
 		out += fmt.Sprintf(" %d further stud%s gave no usable results and %s not counted.", c.Failed, ies(c.Failed), map[bool]string{true: "is", false: "are"}[c.Failed == 1])
 	}
 	return out
+}
+
+// sharedVerdict is the verdict every study with results shares, and
+// whether they share one.
+func sharedVerdict(c BatchCounts) (string, bool) {
+	switch c.Succeeded {
+	case c.Sensitive:
+		return "extent-sensitive", true
+	case c.Robust:
+		return "robust", true
+	case c.Undetermined:
+		return "undetermined", true
+	}
+	return "", false
+}
+
+// oneVerdict is the verdict of the one study with results.
+func oneVerdict(c BatchCounts) string {
+	v, _ := sharedVerdict(c)
+	return v
 }
 
 // toleranceSentence names the tolerances used.
@@ -194,9 +247,10 @@ func (s *BatchSummary) effectSentence() string {
 	if len(mags)%2 == 0 {
 		med = (mags[len(mags)/2-1] + mags[len(mags)/2]) / 2
 	}
-	where := func(r BatchRow) string {
-		return fmt.Sprintf("%s (study %s, model %s, extent %s%s, on %d common test point%s)", signedSmall(r.Effect), r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
+	place := func(r BatchRow) string {
+		return fmt.Sprintf("study %s, model %s, extent %s%s, on %d common test point%s", r.Study, r.Model, r.EffectExtent, effectReference(r), r.EffectPoints, Plural(r.EffectPoints))
 	}
+	where := func(r BatchRow) string { return signedSmall(r.Effect) + " (" + place(r) + ")" }
 	lower := "AUC lower on the extent than on the base extent"
 	if slices.ContainsFunc(defined, func(r BatchRow) bool { return effectReference(r) != "" }) {
 		lower = "AUC lower on the extent than on its study's base extent, or on the reference extent that stands in for it"
@@ -212,11 +266,17 @@ func (s *BatchSummary) effectSentence() string {
 	if zero > 0 {
 		zeroText = fmt.Sprintf(", %d zero", zero)
 	}
-	return fmt.Sprintf("The extent effects ran from %s to %s: %d negative (%s, on their common test points)%s and %d positive, "+
+	span := fmt.Sprintf("The extent effects ran from %s to %s", where(lo), where(hi))
+	if signedSmall(lo.Effect) == signedSmall(hi.Effect) {
+		// "ran from +0.078 (...) to +0.078 (...)" reads as a misprint:
+		// the two ends print alike.
+		span = fmt.Sprintf("The extent effects all read %s as printed here (the smallest: %s; the largest: %s)", signedSmall(lo.Effect), place(lo), place(hi))
+	}
+	return fmt.Sprintf("%s: %d negative (%s, on their common test points)%s and %d positive, "+
 		"their magnitudes of median %s over %d study-model pairs from %d stud%s.%s "+
 		"Each is the largest by magnitude of its model's differences in its study, over extents that differ between studies, and the pairs of one study share its test points: "+
 		"a description of these studies, not an estimate for others.",
-		where(lo), where(hi), neg, lower, zeroText, pos, smallPositive(med), len(defined), len(studies), ies(len(studies)), fewText)
+		span, neg, lower, zeroText, pos, smallPositive(med), len(defined), len(studies), ies(len(studies)), fewText)
 }
 
 // effectReference names the extent a row's extent effect is taken from
@@ -284,6 +344,26 @@ func nullTail(tooFew, undefined int) string {
 		out += fmt.Sprintf("; on %d no difference could be formed", undefined)
 	}
 	return out
+}
+
+// noNullSentence names the study-model pairs that have no comparison
+// with a null (the study scored none, as with no-distance-null, or the
+// model was not compared on the base extent), which the null counts
+// leave out: without it "0 of 1 study-model pair" of a batch of two pairs
+// would not say where the other went. "" when every pair has one.
+func (s *BatchSummary) noNullSentence() string {
+	var pairs []string
+	for _, r := range s.Rows {
+		if r.Null == "" {
+			pairs = append(pairs, r.Study+" ("+r.Model+")")
+		}
+	}
+	if len(pairs) == 0 {
+		return ""
+	}
+	n := len(pairs)
+	return fmt.Sprintf(" %d study-model pair%s %s no comparison with a null and %s not counted there: %s.",
+		n, Plural(n), map[bool]string{true: "has", false: "have"}[n == 1], map[bool]string{true: "is", false: "are"}[n == 1], joinList(pairs))
 }
 
 // nullKindTail names the nulls behind the null counts when they are not

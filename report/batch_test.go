@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -605,15 +606,53 @@ func TestSummaryEdgeSentences(t *testing.T) {
 	}{
 		{name: "one study", studies: []StudyResult{{ID: "only", Results: one()}},
 			want: []string{"The one study of the batch was run with areasweep test into its own folder",
-				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)"},
-			not: []string{"Each of the 1 study", "1 of 1 study-model pairs"}},
+				"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null)",
+				"AUC was extent-sensitive for the one study."},
+			not: []string{"Each of the 1 study", "1 of 1 study-model pairs", "1 of 1 study,"}},
+		// A single study's verdict is one word, not "1 of 1 study, robust
+		// for 0 and undetermined for 0"; a table of one failed study is not
+		// "None of the 1 study", nor left out of counts that are not there.
+		{name: "one study of two with results", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
+			want: []string{"AUC was extent-sensitive for the one study that gave usable results. 1 further study gave no usable results and is not counted.",
+				"and is left out of every count above:"},
+			not: []string{"1 of 1 study,"}},
+		{name: "one study, not judged", studies: []StudyResult{{ID: "flat", Results: nothingScored()}},
+			want: []string{"AUC was undetermined for the one study, which was not judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
+			not:  []string{"1 of 1 study,", "robust for 0"}},
+		// A study that scored no null (no-distance-null) left its pair out
+		// of the null counts without a word: "0 of 1 study-model pair" of a
+		// batch of two pairs.
+		{name: "a study without a null", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "nonull", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, points: 12})}},
+			want: []string{"above the null beyond noise for 1 of 1 study-model pair (against the distance-only null), within noise of it for 0 and below it for 0. " +
+				"1 study-model pair has no comparison with a null and is not counted there: nonull (m1)."}},
+		{name: "every pair with a null", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}},
+			not: []string{"no comparison with a null"}},
+		// Three studies of one verdict and one effect to three decimals:
+		// "for all 3 studies", and the effects do not "run from +0.080 to
+		// +0.080".
+		{name: "three alike", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "c", Results: one()}},
+			want: []string{"AUC was extent-sensitive for all 3 studies.",
+				"The extent effects all read +0.080 as printed here (the smallest: study a, model m1, extent wide, on 12 common test points; the largest: study c, model m1, extent wide, on 12 common test points): 0 negative"},
+			not: []string{"of 3 studies", "ran from +0.080"}},
+		// Two studies of one verdict are "both", not "0 of 2 ... 2 ... 0".
+		{name: "two studies not judged", studies: []StudyResult{{ID: "a", Results: nothingScored()}, {ID: "b", Results: nothingScored()}},
+			want: []string{"AUC was undetermined for both studies, neither of which was judged (no difference from the base extent on 10 or more common test points, our cut-off)."},
+			not:  []string{"of 2 studies", "none of which"}},
+		{name: "two studies of two verdicts", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "flat", Results: nothingScored()}},
+			want: []string{"AUC was extent-sensitive for 1 of 2 studies, robust for 0 and undetermined for 1, which was not judged"},
+			not:  []string{"both studies"}},
+		{name: "the one study failed", studies: []StudyResult{{ID: "z1", Err: errors.New("bad longitude")}},
+			want: []string{"The one study gave no usable results.", "1 study gave no usable results (each line says why: a failure, or results that no longer match the table):"},
+			not:  []string{"None of the 1 study", "left out of every count above"}},
 		{name: "a failed study", studies: []StudyResult{{ID: "a", Results: one()}, {ID: "b", Results: one()}, {ID: "gone", Err: errors.New("missing model")}},
 			want: []string{"Each of the 2 studies of the batch that gave usable results was run with areasweep test into its own folder",
-				"1 further study gave no usable results and is not counted."},
+				"AUC was extent-sensitive for both studies that gave usable results. 1 further study gave no usable results and is not counted."},
 			not: []string{"Each of the 3 studies"}},
 		{name: "every study failed", studies: []StudyResult{{ID: "a", Err: errors.New("x")}, {ID: "b", Err: errors.New("y")}},
-			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave usable results."},
-			not:  []string{"Each of the 2 studies"}},
+			want: []string{"Each study of the batch was to be run with areasweep into its own folder", "None of the 2 studies gave usable results.",
+				"2 studies gave no usable results (each line says why: a failure, or results that no longer match the table):"},
+			not: []string{"Each of the 2 studies", "left out of every count above"}},
 		// 427570.46 and 427610.0 km² both print as 428,000 (fmtArea's three
 		// significant digits): the span would name two ends that read alike.
 		{name: "base extents of one area", studies: []StudyResult{{ID: "a", Results: withArea(one(), 427570.46)}, {ID: "b", Results: withArea(one(), 427610.0)}},
@@ -700,7 +739,9 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 // showed nothing of it in the batch's summary, so among dozens of studies
 // it went unnoticed. summary.csv gives each row its study's number of
 // warnings, and summary.html lists the warnings of each study that has
-// any (escaped), and nothing for a batch without warnings.
+// any (escaped), and nothing for a batch without warnings. One study
+// that warned, or one failed study, is spoken of as one (the sections
+// said "These studies ... their runs warned" of one).
 func TestSummaryWarnings(t *testing.T) {
 	batch := handBatch()
 	batch[1].Results.Warnings = []string{"the base extent holds none of the test points: <check the region>", "2 duplicate presence(s) thinned"}
@@ -736,6 +777,25 @@ func TestSummaryWarnings(t *testing.T) {
 	}
 	if bytes.Contains(page, []byte("<strong>alpha</strong> (")) {
 		t.Error("summary.html lists alpha, which has no warnings")
+	}
+	// One study warned and one failed (delta): each section speaks of one
+	// study, not "These studies ... their runs".
+	for _, want := range []string{"<p>This study finished, and its numbers are in every count, but its run warned:",
+		"<p>This study gave no usable results and is left out of every count. Fix the cause its line names"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("summary.html lacks %q", want)
+		}
+	}
+	if bytes.Contains(page, []byte("These studies")) {
+		t.Error("summary.html says 'These studies' of one study")
+	}
+	batch[0].Results.Warnings = []string{"1 duplicate presence(s) thinned"}
+	two, err := Summarize(batch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if page, err := two.page(nil); err != nil || !bytes.Contains(page, []byte("<p>These studies finished, and their numbers are in every count, but their runs warned:")) {
+		t.Errorf("two studies that warned are not 'These studies' (err %v)", err)
 	}
 	quiet, err := Summarize(handBatch())
 	if err != nil {
@@ -831,5 +891,52 @@ func TestBatchSmallDifferences(t *testing.T) {
 	r.Effect, r.EffectLow, r.EffectHigh = 0.05, 0.0201, 0.08
 	if got, want := pageRowOf(r, "").Interval, "+0.0201 to +0.080"; got != want {
 		t.Errorf("interval against the tolerance %q, want %q", got, want)
+	}
+}
+
+// TestSummaryDropsStaleFigure reruns a batch into the same folder: the
+// first summary draws the extent effects, the second has none to draw
+// (every study failed this time). The first summary's figure must go with
+// it, or summary_figures would show studies and effects the new summary
+// does not hold; a file of the user's in summary_figures stays, and with
+// it the folder.
+func TestSummaryDropsStaleFigure(t *testing.T) {
+	first, err := Summarize(handBatch())
+	if err != nil {
+		t.Fatal(err)
+	}
+	none, err := Summarize([]StudyResult{{ID: "alpha", Err: errors.New("occurrences.csv line 3: bad longitude")}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, keep := range []bool{false, true} {
+		dir := t.TempDir()
+		figDir := filepath.Join(dir, SummaryFigures)
+		if err := WriteSummary(dir, first); err != nil {
+			t.Fatal(err)
+		}
+		mine := filepath.Join(figDir, "my_notes.txt")
+		if keep {
+			if err := os.WriteFile(mine, []byte("mine"), 0o666); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := WriteSummary(dir, none); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range figureFormats {
+			if _, err := os.Stat(filepath.Join(figDir, EffectFigure+"."+f)); !errors.Is(err, fs.ErrNotExist) {
+				t.Errorf("user file %v: the first summary's %s.%s is still there (stat: %v)", keep, EffectFigure, f, err)
+			}
+		}
+		_, err := os.Stat(mine)
+		switch {
+		case keep && err != nil:
+			t.Errorf("the user's file in %s is gone: %v", SummaryFigures, err)
+		case !keep:
+			if _, err := os.Stat(figDir); !errors.Is(err, fs.ErrNotExist) {
+				t.Errorf("the emptied %s is still there (stat: %v)", SummaryFigures, err)
+			}
+		}
 	}
 }

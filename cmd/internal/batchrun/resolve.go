@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"maps"
 	"os"
 	"path/filepath"
 	"strings"
@@ -55,13 +56,19 @@ func resolve(o *Options) ([]*study, error) {
 	var studies []*study
 	check := &batch.Checker{}
 	for _, row := range b.Studies {
-		st, err := resolveRow(o, b.File, row, out, reserved)
-		if err != nil {
-			errs = append(errs, err)
+		st, rowErrs := resolveRow(o, b.File, row, out, reserved)
+		if len(rowErrs) > 0 {
+			errs = append(errs, rowErrs...)
 			continue
 		}
 		st.inputs = check
 		studies = append(studies, st)
+	}
+	for _, row := range b.Refused {
+		bad := func(column string, err error) *inputs.BatchError {
+			return &inputs.BatchError{File: b.File, Line: row.Line, Column: column, Study: row.ID, Err: err}
+		}
+		errs = append(errs, refusedProblems(row, filepath.Join(out, "refused"), bad)...)
 	}
 	if len(errs) > 0 {
 		inputs.SortBatchErrors(errs)
@@ -74,21 +81,17 @@ func resolve(o *Options) ([]*study, error) {
 }
 
 // resolveRow lays one row of the table (file) over the defaults into the
-// study's settings, its folder in out; the error is the row's problem.
-func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, reserved map[string]bool) (*study, *inputs.BatchError) {
+// study's settings, its folder in out; the errors are the row's problems.
+func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, reserved map[string]bool) (*study, inputs.BatchErrors) {
 	bad := func(column string, err error) *inputs.BatchError {
 		return &inputs.BatchError{File: file, Line: row.Line, Column: column, Study: row.ID, Err: err}
 	}
 	if reserved[strings.ToLower(row.ID)] {
-		return nil, bad("id", fmt.Errorf("%q is the name of a summary file in --out; rename the study", row.ID))
+		return nil, inputs.BatchErrors{bad("id", fmt.Errorf("%q is the name of a summary file in --out; rename the study", row.ID))}
 	}
-	po := pipeline.Options{Values: settings.Defaults()}
-	row.Study.Apply(&po.Values, func(string) bool { return false }) // no flag: the row and the shared block say all
-	po.Out = filepath.Join(out, row.ID)
-	// Checked as run checks its flags: the message names the setting as
-	// a flag ("--seed ..."), which gives the table's column.
-	if err := po.Validate(); err != nil {
-		return nil, bad(flagColumn(err.Error()), err)
+	po := rowOptions(row.Study, filepath.Join(out, row.ID))
+	if errs := rowProblems(row.Study, po.Out, bad); len(errs) > 0 {
+		return nil, errs
 	}
 	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
 	if col, err := missingInput(&po); err != nil {
@@ -101,6 +104,84 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	st.canonical = canonicalSettings(po)
 	st.settings = batch.SettingsHash(st.canonical)
 	return st, nil
+}
+
+// rowOptions lays a row's settings (the shared block's and its own) over
+// the defaults, with the study's folder as its --out.
+func rowOptions(row *inputs.Study, out string) pipeline.Options {
+	po := pipeline.Options{Values: settings.Defaults()}
+	row.Apply(&po.Values, func(string) bool { return false }) // no flag: the row and the shared block say all
+	po.Out = out
+	return po
+}
+
+// rowProblems checks a row as run checks its flags (the message names the
+// setting as a flag, "--e ...", which gives the table's column) and lists
+// every problem of it, not the first only: after each, the setting it
+// names is taken back to its default and the row checked again, so that a
+// row with a bad --e and a bad --fraction names both in one round. A
+// problem that names no column, or one already named, ends the list (its
+// default would only repeat or hide it).
+func rowProblems(row *inputs.Study, out string, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
+	return settingProblems(row, out, nil, bad)
+}
+
+// placeholders stand in for a refused row's required keys that were
+// refused or left out (already reported), so that the row's other
+// settings are checked too rather than stopping at "no model given".
+// They are only checked, never run or opened.
+var placeholders = map[string]any{"model": []string{"m=refused"}, "occurrences": "refused", "region": "refused"}
+
+// refusedProblems lists the problems of a row the table's reading already
+// refused (a cell that does not read, a missing required key) that its
+// other settings give: a row with iterations "abc" and e 1.5 named the
+// first only, so the second came to light only once it was fixed. The
+// keys already reported are not reported again.
+func refusedProblems(row inputs.RefusedStudy, out string, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
+	left := inputs.Study{}
+	if row.Study != nil {
+		maps.Copy(left, *row.Study)
+	}
+	named := maps.Clone(row.Reported)
+	for k, v := range placeholders {
+		if _, set := left[k]; !set || named[k] {
+			left[k] = v
+			named[k] = true
+		}
+	}
+	return settingProblems(&left, out, named, bad)
+}
+
+// settingProblems is rowProblems with the keys in named already reported:
+// a problem on one of them ends the list unreported.
+func settingProblems(row *inputs.Study, out string, named map[string]bool, bad func(string, error) *inputs.BatchError) inputs.BatchErrors {
+	var errs inputs.BatchErrors
+	left := inputs.Study{}
+	if row != nil {
+		maps.Copy(left, *row)
+	}
+	named = maps.Clone(named)
+	if named == nil {
+		named = map[string]bool{}
+	}
+	for range len(inputs.StudyKeys()) + 1 {
+		po := rowOptions(&left, out)
+		err := po.Validate()
+		if err == nil {
+			break
+		}
+		col := flagColumn(err.Error())
+		if named[col] {
+			break
+		}
+		errs = append(errs, bad(col, err))
+		if _, set := left[col]; col == "" || !set {
+			break
+		}
+		named[col] = true
+		delete(left, col)
+	}
+	return errs
 }
 
 // selectOnly keeps the studies o.Only names, in table order, and refuses

@@ -231,6 +231,9 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 	where := ""
 	if summary {
 		where = filepath.Join(o.Out, report.SummaryHTML) + " lists each with its error, and "
+		if failed == 1 {
+			where = filepath.Join(o.Out, report.SummaryHTML) + " lists it with its error, and "
+		}
 	}
 	// What --force gets past: a stale study, or a folder that holds files
 	// but no completion marker (run --force replaces areasweep's files
@@ -278,8 +281,12 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 	}
 	// Shown: each line went through UserText; the ids are the user's own
 	// (a study named "report" or "pass" keeps its name).
-	return fault.Shown(fmt.Errorf("%d of %d studies failed: %s; %s%s:%s",
-		failed, len(studies), strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
+	count := fmt.Sprintf("%d of %d studies failed", failed, len(studies))
+	if len(studies) == 1 {
+		count = "the one study failed" // not "1 of 1 studies"
+	}
+	return fault.Shown(fmt.Errorf("%s: %s; %s%s:%s",
+		count, strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
 }
 
 // forceNote adds to the error of a study whose recorded input cannot be

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -126,6 +127,20 @@ type Batch struct {
 	Shared *Study
 	// Studies are the rows in file order.
 	Studies []BatchStudy
+	// Refused are the rows with a problem of the table's (a cell that
+	// does not read, an id refused, a required key missing), with their
+	// settings as far as they were read, when LoadBatch returns
+	// problems: the caller checks them too, so that every problem of a
+	// row is listed in one round.
+	Refused []RefusedStudy
+}
+
+// RefusedStudy is a row with a problem: the row as far as it was read and
+// the keys already reported for it (a refused value, a missing required
+// key), which the caller must not report again.
+type RefusedStudy struct {
+	BatchStudy
+	Reported map[string]bool
 }
 
 // BatchStudy is one row: its id, its line in the table, and its settings
@@ -216,7 +231,13 @@ func ParseBatch(data []byte, name string, baseDir string, isYAML bool) (*Batch, 
 		for i, s := range p.b.Studies {
 			if !p.bad[i] {
 				ok = append(ok, s)
+				continue
 			}
+			reported := map[string]bool{}
+			if i < len(p.failed) {
+				maps.Copy(reported, p.failed[i])
+			}
+			p.b.Refused = append(p.b.Refused, RefusedStudy{BatchStudy: s, Reported: reported})
 		}
 		p.b.Studies = ok
 		SortBatchErrors(p.errs)

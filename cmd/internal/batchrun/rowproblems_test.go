@@ -1,0 +1,77 @@
+package batchrun
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"areasweep/cmd/internal/inputs"
+)
+
+// TestRowProblemsAllInOneRound: a row with two settings that run would
+// refuse (e 1.5 and fraction 2) was refused for the first only, so the
+// user fixed it, ran again and met the second; every problem of a row is
+// now listed in one round, each with its column, and a good row beside it
+// adds none.
+func TestRowProblemsAllInOneRound(t *testing.T) {
+	s := newSmallStudy(t)
+	table := filepath.Join(s.Dir, "two_bad.csv")
+	body := "# iterations: 30\nid,model,occurrences,region,e,fraction,iterations\n" +
+		"bad,m=model.tif,occ.csv,region.geojson,1.5,2,\n" +
+		"good,m=model.tif,occ.csv,region.geojson,0.1,0.5,\n" +
+		"one,m=model.tif,occ.csv,region.geojson,,1.5,\n"
+	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	_, err := resolve(&Options{Table: table, Out: filepath.Join(t.TempDir(), "out")})
+	var errs inputs.BatchErrors
+	if !errors.As(err, &errs) {
+		t.Fatalf("resolve: %v, want the table's problems", err)
+	}
+	var got []string
+	for _, e := range errs {
+		got = append(got, e.Study+"/"+e.Column)
+	}
+	if want := "bad/e bad/fraction one/fraction"; strings.Join(got, " ") != want {
+		t.Errorf("problems %v, want %s", got, want)
+	}
+	for _, want := range []string{`line 3, study "bad", column "e": --e value 1.5 is outside (0,1)`, `line 3, study "bad", column "fraction": --fraction 2 is outside (0,1]`} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message lacks %q:\n%v", want, err)
+		}
+	}
+}
+
+// TestRefusedRowProblemsAllInOneRound: a row the table's reading refused
+// (iterations "abc", a model without a name) hid its other problems: its
+// e 1.5 came to light only once the cells were fixed. They are now listed
+// in the same round, and the refused cells and the model are not named a
+// second time (no "no model given").
+func TestRefusedRowProblemsAllInOneRound(t *testing.T) {
+	s := newSmallStudy(t)
+	table := filepath.Join(s.Dir, "refused.csv")
+	body := "# iterations: 30\nid,model,occurrences,region,e,iterations\n" +
+		"cells,m=model.tif,occ.csv,region.geojson,1.5,abc\n" +
+		"noname,model.tif,occ.csv,region.geojson,0.1;2,\n" +
+		"fine,m=model.tif,occ.csv,region.geojson,,\n"
+	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	_, err := resolve(&Options{Table: table, Out: filepath.Join(t.TempDir(), "out")})
+	var errs inputs.BatchErrors
+	if !errors.As(err, &errs) {
+		t.Fatalf("resolve: %v, want the table's problems", err)
+	}
+	var got []string
+	for _, e := range errs {
+		got = append(got, e.Study+"/"+e.Column)
+	}
+	if want := "cells/iterations cells/e noname/model noname/e"; strings.Join(got, " ") != want {
+		t.Errorf("problems %v, want %s\n%v", got, want, err)
+	}
+	if msg := err.Error(); strings.Contains(msg, "no model given") || strings.Contains(msg, "m=refused") || strings.Contains(msg, "--region refused") {
+		t.Errorf("a refused cell is reported again, or a placeholder shows:\n%v", err)
+	}
+}
