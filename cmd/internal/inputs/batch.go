@@ -541,6 +541,11 @@ func (p *batchParser) parseCSV(data []byte) {
 				p.add(cl+lines, "", id, fmt.Errorf("%w: column %d has no name in the header but holds %s on this row; name the column with a study key, or clear the cell", ErrBatchColumn, j+1, shown(cell)))
 				continue
 			}
+			if err := decimalCommaCell(delim, cols[j], cell); err != nil {
+				p.add(cl+lines, cols[j], id, err)
+				p.row[cols[j]] = true
+				continue
+			}
 			p.setKey(st, cols[j], cellNode(cols[j], cell, cl+lines), id)
 		}
 		p.b.Studies = append(p.b.Studies, BatchStudy{ID: id, Line: line, Study: st})
@@ -665,6 +670,31 @@ func cellNode(key, cell string, line int) *yaml.Node {
 		return n
 	}
 	return &yaml.Node{Kind: yaml.ScalarNode, Value: cell, Line: line, LineComment: tableCell}
+}
+
+// decimalCommaCell refuses a number-list cell of a table delimited by
+// semicolons or tabs that holds one comma and neither a ';' nor a dot: such
+// a table is what a spreadsheet writes where the decimal separator is a
+// comma, so "12,5" is as likely the number 12.5 (the occurrence table
+// reads it so) as the list 12 and 5, which a comma separates elsewhere;
+// it was read as the list without a word ("0,05" for e became 0 and 5,
+// refused as "e value 0 is outside (0,1)"). nil for any other cell.
+func decimalCommaCell(delim rune, key, cell string) error {
+	if delim == ',' || strings.Count(cell, ",") != 1 || strings.ContainsAny(cell, ";.") {
+		return nil // two commas or more: a list, which no number is
+	}
+	if row, ok := settings.Lookup(key); !ok || row.Kind != settings.FloatList {
+		return nil
+	}
+	list := strings.ReplaceAll(cell, ",", ";")
+	if delim == ';' {
+		list = `"` + list + `"` // its ';' would split the cell unquoted
+	}
+	return badValue("%s in a table delimited by %s could be a number with a decimal comma (%s) or a list (%s); "+
+		"write %s for the number, or %s for the list",
+		shown(cell), map[rune]string{';': "semicolons", '\t': "tabs"}[delim],
+		strings.ReplaceAll(cell, ",", "."), strings.Join(strings.Split(cell, ","), " and "),
+		strings.ReplaceAll(cell, ",", "."), list)
 }
 
 // tableCell marks (as its LineComment, which nothing writes out) a node

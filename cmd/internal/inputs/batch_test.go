@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 	"unicode/utf8"
@@ -549,6 +550,52 @@ func TestBatchGivenOccurrences(t *testing.T) {
 		var es BatchErrors
 		if !errors.As(err, &es) || len(es) != 1 || !strings.Contains(err.Error(), "this is an occurrence table") || !strings.Contains(err.Error(), "areasweep run --occurrences") {
 			t.Errorf("%q: %v", text, err)
+		}
+	}
+}
+
+// TestBatchDecimalCommaList: in a table delimited by semicolons or tabs
+// (as a spreadsheet writes where the decimal separator is a comma), a
+// number-list cell with one comma, "0,05" or "12,5", is refused with both
+// readings, line and column; it was read as the list 0 and 5 (refused as
+// "e value 0 is outside (0,1)") or, for a buffer, silently as 12 and 5 km
+// (the batch audit). Two commas or more are a list; a ';' list, a dot and
+// a comma-delimited table's quoted list read as before.
+func TestBatchDecimalCommaList(t *testing.T) {
+	for _, c := range []struct {
+		name, text string
+		want       []string // in the error; nil: parses
+		key        string
+		list       []float64
+	}{
+		{"e semicolons", "id;model;occurrences;region;e\noak;g=a.tif;p.csv;r.gpkg;0,05\n",
+			[]string{"t.csv", "line 2", `"0,05" in a table delimited by semicolons could be a number with a decimal comma (0.05) or a list (0 and 05); write 0.05 for the number, or "0;05" for the list`}, "", nil},
+		{"buffer tabs", "id\tmodel\toccurrences\tregion\tregion-buffers\noak\tg=a.tif\tp.csv\tr.gpkg\t12,5\n",
+			[]string{"line 2", "region-buffers", `(12.5) or a list (12 and 5); write 12.5 for the number, or 12;5 for the list`}, "", nil},
+		{"three items", "id;model;occurrences;region;region-buffers\noak;g=a.tif;p.csv;r.gpkg;10,25,50\n", nil, "region-buffers", []float64{10, 25, 50}},
+		{"semicolon list", "id;model;occurrences;region;region-buffers\noak;g=a.tif;p.csv;r.gpkg;\"12;5\"\n", nil, "region-buffers", []float64{12, 5}},
+		{"dot", "id;model;occurrences;region;e\noak;g=a.tif;p.csv;r.gpkg;0.05\n", nil, "e", []float64{0.05}},
+		{"comma table", "id,model,occurrences,region,region-buffers\noak,g=a.tif,p.csv,r.gpkg,\"12,5\"\n", nil, "region-buffers", []float64{12, 5}},
+	} {
+		b, err := ParseBatch([]byte(c.text), "t.csv", "", false)
+		if c.want != nil {
+			if err == nil {
+				t.Errorf("%s: parsed: %+v", c.name, *b.Studies[0].Study)
+				continue
+			}
+			for _, w := range c.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("%s: %q lacks %q", c.name, err, w)
+				}
+			}
+			continue
+		}
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		if got, _ := (*b.Studies[0].Study)[c.key].([]float64); !slices.Equal(got, c.list) {
+			t.Errorf("%s: %s = %v, want %v", c.name, c.key, got, c.list)
 		}
 	}
 }
