@@ -215,6 +215,12 @@ func (b *builder) keepChains() {
 		names = append(names, name)
 	}
 	sort.Strings(names)
+	// A member names a chain only when it is kept in it: an empty or
+	// duplicate member, or one past a cut, is in none (the builders set
+	// the chain of every member they add).
+	for k := range f.Members {
+		f.Members[k].Chain = ""
+	}
 	for _, name := range names {
 		var kept []int
 		for _, k := range f.Chains[name] {
@@ -236,13 +242,6 @@ func (b *builder) keepChains() {
 		f.Chains[name] = kept
 		for _, k := range kept {
 			f.Members[k].Chain = name
-		}
-	}
-	for k := range f.Members {
-		if f.Members[k].Chain != "" {
-			if _, ok := f.Chains[f.Members[k].Chain]; !ok {
-				f.Members[k].Chain = ""
-			}
 		}
 	}
 }

@@ -857,6 +857,13 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 				geom = u
 			}
 		}
+		if !lsr.IsSame(g.srs) {
+			fixed, err := validProjected(geom, g.srs)
+			if err != nil {
+				return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
+			}
+			geom = fixed
+		}
 		sh, err := shapeOf(geom, g)
 		if err != nil {
 			return nil, fmt.Errorf("extent: %s: %w", unitName(path, id), err)
@@ -864,6 +871,25 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 		units = append(units, Unit{ID: id, Shape: sh, geom: geom})
 	}
 	return units, nil
+}
+
+// validProjected returns geom, a unit valid in its layer's CRS now
+// reprojected to the raster's (srs), repaired when the projection left
+// it invalid: the parts of a unit stored split at 180 degrees meet along
+// that meridian, and projected (with vertices added along their edges)
+// they cross each other by rounding there, which GEOS's union and
+// touching tests refuse ("side location conflict"). The repair keeps the
+// area of every part (makeValid); the user's geometry was valid, so
+// nothing is said.
+func validProjected(geom *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	if ok, _ := validity(geom); ok {
+		return geom, nil
+	}
+	fixed, err := makeValid(geom, srs)
+	if err != nil {
+		return nil, fmt.Errorf("valid in its own CRS, it is not once reprojected to the raster's, and GDAL could not repair it (%v); clip the layer to the raster's area, or give it in the raster's CRS", err)
+	}
+	return fixed, nil
 }
 
 // centreCell returns the raster's centre cell as a polygon in srs (nil:

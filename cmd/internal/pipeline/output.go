@@ -3,6 +3,7 @@ package pipeline
 import (
 	"bytes"
 	"encoding/csv"
+	"math"
 	"strconv"
 	"strings"
 
@@ -162,7 +163,8 @@ func extentsCSV(ex []report.Extent) []byte {
 
 // writeOmittedGPKG writes the test points with, per model and threshold, a
 // 0/1 field saying whether the threshold omits them (layer
-// "test_points", WGS84), so the spatial pattern of omission can be mapped.
+// "test_points", WGS84, longitudes on the grid's turn: lonOnGridTurn), so
+// the spatial pattern of omission can be mapped over extents.gpkg.
 func writeOmittedGPKG(path string, r *report.Results) error {
 	wgs, err := godal.NewSpatialRefFromEPSG(4326)
 	if err != nil {
@@ -188,7 +190,7 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 		if p.Role != vocab.RoleTest || p.Status != vocab.PointScored {
 			continue
 		}
-		b, err := wkb.Marshal(orb.Point{p.Lon, p.Lat})
+		b, err := wkb.Marshal(orb.Point{lonOnGridTurn(p, r.Grid), p.Lat})
 		if err != nil {
 			return err
 		}
@@ -203,6 +205,19 @@ func writeOmittedGPKG(path string, r *report.Results) error {
 		feats = append(feats, extent.Feature{WKB: b, Values: vals})
 	}
 	return extent.WriteLayer(path, "test_points", wgs, godal.GTPoint, fields, feats)
+}
+
+// lonOnGridTurn returns a scored point's longitude moved by whole turns to
+// the turn of the cell it was scored on, on a latitude-longitude grid: a
+// grid running 165°..195° takes a point given at −170° as 190°, where
+// extents.gpkg's outlines (in the grid's coordinates) and the cell are.
+// On a projected grid the longitude is as given.
+func lonOnGridTurn(p report.Point, g report.Grid) float64 {
+	if !g.Geographic {
+		return p.Lon
+	}
+	centre := g.GeoTransform[0] + (float64(p.Col)+0.5)*g.GeoTransform[1]
+	return p.Lon + 360*math.Round((centre-p.Lon)/360)
 }
 
 // bar is a progress bar on stderr, drawn only on a terminal.
