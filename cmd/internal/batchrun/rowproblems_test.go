@@ -16,24 +16,10 @@ import (
 // now listed in one round, each with its column, and a good row beside it
 // adds none.
 func TestRowProblemsAllInOneRound(t *testing.T) {
-	s := newSmallStudy(t)
-	table := filepath.Join(s.Dir, "two_bad.csv")
-	body := "# iterations: 30\nid,model,occurrences,region,e,fraction,iterations\n" +
-		"bad,m=model.tif,occ.csv,region.geojson,1.5,2,\n" +
-		"good,m=model.tif,occ.csv,region.geojson,0.1,0.5,\n" +
-		"one,m=model.tif,occ.csv,region.geojson,,1.5,\n"
-	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
-		t.Fatal(err)
-	}
-	_, err := resolve(&Options{Table: table, Out: filepath.Join(t.TempDir(), "out")})
-	var errs inputs.BatchErrors
-	if !errors.As(err, &errs) {
-		t.Fatalf("resolve: %v, want the table's problems", err)
-	}
-	var got []string
-	for _, e := range errs {
-		got = append(got, e.Study+"/"+e.Column)
-	}
+	got, err := tableProblems(t, "two_bad.csv", "# iterations: 30\nid,model,occurrences,region,e,fraction,iterations\n"+
+		"bad,m=model.tif,occ.csv,region.geojson,1.5,2,\n"+
+		"good,m=model.tif,occ.csv,region.geojson,0.1,0.5,\n"+
+		"one,m=model.tif,occ.csv,region.geojson,,1.5,\n")
 	if want := "bad/e bad/fraction one/fraction"; strings.Join(got, " ") != want {
 		t.Errorf("problems %v, want %s", got, want)
 	}
@@ -50,12 +36,26 @@ func TestRowProblemsAllInOneRound(t *testing.T) {
 // in the same round, and the refused cells and the model are not named a
 // second time (no "no model given").
 func TestRefusedRowProblemsAllInOneRound(t *testing.T) {
+	got, err := tableProblems(t, "refused.csv", "# iterations: 30\nid,model,occurrences,region,e,iterations\n"+
+		"cells,m=model.tif,occ.csv,region.geojson,1.5,abc\n"+
+		"noname,model.tif,occ.csv,region.geojson,0.1;2,\n"+
+		"fine,m=model.tif,occ.csv,region.geojson,,\n")
+	if want := "cells/iterations cells/e noname/model noname/e"; strings.Join(got, " ") != want {
+		t.Errorf("problems %v, want %s\n%v", got, want, err)
+	}
+	if msg := err.Error(); strings.Contains(msg, "no model given") || strings.Contains(msg, "m=refused") || strings.Contains(msg, "--region refused") {
+		t.Errorf("a refused cell is reported again, or a placeholder shows:\n%v", err)
+	}
+}
+
+// tableProblems writes body as the study table name beside the small
+// study's files, resolves it, and returns its problems as "study/column",
+// in order, and the error; it fails the test when the table is not
+// refused for its rows.
+func tableProblems(t *testing.T, name, body string) ([]string, error) {
+	t.Helper()
 	s := newSmallStudy(t)
-	table := filepath.Join(s.Dir, "refused.csv")
-	body := "# iterations: 30\nid,model,occurrences,region,e,iterations\n" +
-		"cells,m=model.tif,occ.csv,region.geojson,1.5,abc\n" +
-		"noname,model.tif,occ.csv,region.geojson,0.1;2,\n" +
-		"fine,m=model.tif,occ.csv,region.geojson,,\n"
+	table := filepath.Join(s.Dir, name)
 	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
 		t.Fatal(err)
 	}
@@ -68,10 +68,5 @@ func TestRefusedRowProblemsAllInOneRound(t *testing.T) {
 	for _, e := range errs {
 		got = append(got, e.Study+"/"+e.Column)
 	}
-	if want := "cells/iterations cells/e noname/model noname/e"; strings.Join(got, " ") != want {
-		t.Errorf("problems %v, want %s\n%v", got, want, err)
-	}
-	if msg := err.Error(); strings.Contains(msg, "no model given") || strings.Contains(msg, "m=refused") || strings.Contains(msg, "--region refused") {
-		t.Errorf("a refused cell is reported again, or a placeholder shows:\n%v", err)
-	}
+	return got, err
 }
