@@ -760,7 +760,7 @@ func TestREADMESetUp(t *testing.T) {
 	}
 	for script, runs := range map[string][]string{
 		"scripts/demo.sh": {"scripts/setup.sh", "go build -o bin/areasweep ./cmd/areasweep", `bin/areasweep demo --out "$out" --force`, `out="${1:-areasweep-demo}"`},
-		"scripts/test.sh": {"scripts/setup.sh --test", "gofmt -l .", "go vet ./...", "go test -count=1 ./...", "go test -race -short -count=1"},
+		"scripts/test.sh": {"scripts/setup.sh --test", "gofmt -l .", "go vet ./...", "go test -count=1 -timeout 30m ./...", "go test -race -short -count=1"},
 	} {
 		s := read(script)
 		for _, r := range runs {
@@ -769,7 +769,7 @@ func TestREADMESetUp(t *testing.T) {
 			}
 		}
 	}
-	for _, says := range []string{"`bin/areasweep`", "bin/areasweep demo --out areasweep-demo --force", "`areasweep-demo`", "`scripts/setup.sh --test`", "`gofmt -l .`", "`go vet ./...`", "`go test -count=1 ./...`", "`go test -race -short -count=1`"} {
+	for _, says := range []string{"`bin/areasweep`", "bin/areasweep demo --out areasweep-demo --force", "`areasweep-demo`", "`scripts/setup.sh --test`", "`gofmt -l .`", "`go vet ./...`", "`go test -count=1 -timeout 30m ./...`", "`go test -race -short -count=1`"} {
 		if !strings.Contains(flat, says) {
 			t.Errorf("README's set-up paragraphs no longer say %s", says)
 		}
