@@ -40,5 +40,5 @@ echo "== go test -race (the packages whose work runs on several goroutines)"
 # checks the packages that share work between goroutines (the streaming
 # pass and the null's field, the family build, the pipeline's stages, the
 # batch scheduler, the output folder's guard, the shard files). -short
-# keeps it to about a minute and a half on 2 cores.
+# keeps it to about four minutes on 2 cores (the null's package, about 200 s, the longest).
 go test -race -short -count=1 -timeout 30m ./cmd/internal/pass/ ./extent/nullmodel/ ./extent/ ./cmd/internal/pipeline/ ./cmd/internal/batchrun/ ./cmd/internal/batch/ ./cmd/internal/outdir/ ./cmd/internal/shardfile/
