@@ -42,11 +42,7 @@ func drawnTexts(t *testing.T, f figure) []string {
 // names the model as not drawn.
 func TestMetricsLegendOnlyDrawn(t *testing.T) {
 	r := loadSample(t)
-	for i := range r.Scores {
-		if r.Scores[i].Model == "broad" {
-			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
-		}
-	}
+	constantModel(r, "broad")
 	analyzed(t, r)
 	texts := drawnTexts(t, metricsFigure(r))
 	if slices.Contains(texts, "model broad") {
@@ -81,11 +77,7 @@ func TestMetricsLegendOnlyDrawn(t *testing.T) {
 // that panel.
 func TestROCEmptyPanelSaysWhy(t *testing.T) {
 	r := loadSample(t)
-	for i := range r.Scores {
-		if r.Scores[i].Model == "broad" {
-			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
-		}
-	}
+	constantModel(r, "broad")
 	analyzed(t, r)
 	// The canvas draws a text of several lines line by line.
 	first, _, _ := strings.Cut(rocUnscoredNote, "\n")

@@ -172,11 +172,7 @@ func TestROCNoBarWithoutRamp(t *testing.T) {
 // was not scored.
 func TestMetricsCaptionNamesUnscored(t *testing.T) {
 	r := loadSample(t)
-	for i := range r.Scores {
-		if r.Scores[i].Model == "broad" {
-			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
-		}
-	}
+	constantModel(r, "broad")
 	analyzed(t, r)
 	got := undrawnSentence(r)
 	checkWords(t, "one model constant", got, []string{"Not scored on any extent (the Scores table says why), so not drawn: broad."}, []string{"of broad", "Undefined"})
@@ -195,11 +191,7 @@ func TestMetricsCaptionNamesUnscored(t *testing.T) {
 // empty panel read as curves lost in drawing. The caption names it.
 func TestROCCaptionNamesUnscored(t *testing.T) {
 	r := loadSample(t)
-	for i := range r.Scores {
-		if r.Scores[i].Model == "broad" {
-			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
-		}
-	}
+	constantModel(r, "broad")
 	analyzed(t, r)
 	es := r.Extents
 	checkWords(t, "one model constant", rocCaption(r, es, len(es), false, 0.05),
@@ -245,4 +237,14 @@ func TestMetricsCaptionFewFormedResamples(t *testing.T) {
 	analyzed(t, r)
 	checkWords(t, "30 formed on one extent", metricsCaption(r),
 		[]string{spans + " (no bar where fewer than 40 resamples formed a ratio, our cut-off)"}, nil)
+}
+
+// constantModel marks model as scored on no extent in r, as a constant
+// raster is (the words the pipeline gives such a score).
+func constantModel(r *Results, model string) {
+	for i := range r.Scores {
+		if r.Scores[i].Model == model {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "constant suitability (minimum equals maximum on this extent)"
+		}
+	}
 }
