@@ -873,7 +873,9 @@ func TestEffectSentenceNamesReference(t *testing.T) {
 // -0.0003 (95% interval -0.0004 to -0.0002) and a gap to the null of
 // +0.0004 as "-0.000" and "+0.000 to +0.000", which read as no difference
 // at all; they keep their digits and sign, as in each study's report, and
-// an interval's end near the tolerance shows its side of it.
+// an interval's end near the tolerance shows its side of it. The numbers
+// are set by hand (by construction): the expected texts are their
+// formatting, not values computed elsewhere.
 func TestBatchSmallDifferences(t *testing.T) {
 	r := BatchRow{Study: "s", Model: "m", EffectDefined: true, EffectExtent: "hull", Effect: -0.0003, EffectLow: -0.0004, EffectHigh: -0.0002,
 		EffectPoints: 40, EffectJudged: true, Tolerance: 0.02, Null: "distance_null", NullDefined: true, NullDiff: 0.0004, NullLow: 0.0001, NullHigh: 0.0007}
