@@ -15,8 +15,10 @@ import (
 	"syscall"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/stopsig"
@@ -273,6 +275,13 @@ reports how much of each score comes from the extent rather than from the model.
 		if m := givenTwiceError.FindStringSubmatch(err.Error()); m != nil {
 			return fault.BadInput(errors.New(cutQuoted(fmt.Sprintf("%s (see '%s --help')", m[1], c.CommandPath()))))
 		}
+		if m := unknownFlagError.FindStringSubmatch(err.Error()); m != nil {
+			// A suggestion is close to the name given, so the name is
+			// short (no cutQuoted needed).
+			if s := suggestFlag(c, m[1]); s != "" {
+				return fault.BadInput(fmt.Errorf("unknown flag: --%s; did you mean --%s? (see '%s --help')", m[1], s, c.CommandPath()))
+			}
+		}
 		if cut := cutQuoted(err.Error()); cut != err.Error() {
 			err = errors.New(cut)
 		}
@@ -341,6 +350,23 @@ func cutQuoted(msg string) string {
 // argCountError matches cobra's message for a command given too many or
 // too few arguments (ExactArgs(1), MaximumNArgs(1)).
 var argCountError = regexp.MustCompile(`^accepts (at most )?1 arg\(s\), received \d+$`)
+
+// unknownFlagError matches pflag's message for a long flag the command
+// does not have; its group is the name as given (without --).
+var unknownFlagError = regexp.MustCompile(`^unknown flag: --(.+)$`)
+
+// suggestFlag returns the name of c's flag (hidden ones left out) nearest
+// to name, a flag c does not have, or "" (inputs.Closest: a typo, a case
+// or '_' slip, or the start of one flag's name).
+func suggestFlag(c *cobra.Command, name string) string {
+	var names []string
+	c.Flags().VisitAll(func(f *pflag.Flag) {
+		if !f.Hidden {
+			names = append(names, f.Name)
+		}
+	})
+	return inputs.Closest(name, names)
+}
 
 // givenTwiceError matches pflag's message for a flag given twice
 // (onceString), whose own words say it all: pflag's "invalid argument

@@ -32,3 +32,29 @@ func TestStrayArgument(t *testing.T) {
 		}
 	}
 }
+
+// TestUnknownFlagSuggestion: a mistyped flag is refused (exit 2) with the
+// command's flag it most likely meant (inputs.Closest), and without a
+// guess when none is close; the flag's name, not a guess, for a name the
+// command does not know at all.
+func TestUnknownFlagSuggestion(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"run", "--modle", "a=b.tif"}, "unknown flag: --modle; did you mean --model? (see 'areasweep run --help')"},
+		{[]string{"run", "--iter", "10"}, "unknown flag: --iter; did you mean --iterations? (see 'areasweep run --help')"},
+		{[]string{"run", "--region_buffers=100"}, "unknown flag: --region_buffers; did you mean --region-buffers?"},
+		{[]string{"extents", "--Out", "x"}, "unknown flag: --Out; did you mean --out? (see 'areasweep extents --help')"},
+		{[]string{"run", "--xyzzy"}, "unknown flag: --xyzzy (see 'areasweep run --help')"},
+	} {
+		var out, errOut strings.Builder
+		code := Main(c.args, nil, &out, &errOut)
+		if code != exitBadInput || !strings.Contains(errOut.String(), c.want) {
+			t.Errorf("%v: exit %d, stderr %q; want 2 and %q", c.args, code, errOut.String(), c.want)
+		}
+		if strings.Contains(c.want, "xyzzy") && strings.Contains(errOut.String(), "did you mean") {
+			t.Errorf("%v: a guess where no flag is close: %q", c.args, errOut.String())
+		}
+	}
+}

@@ -605,9 +605,17 @@ func TestStudyErrorFormat(t *testing.T) {
 func TestEditDistance(t *testing.T) {
 	cases := []struct {
 		a, b string
-		want int // textbook Levenshtein distances, by construction
+		want int
 	}{
+		// Textbook Levenshtein distances (no adjacent swap in them), by
+		// construction.
 		{"", "", 0}, {"a", "", 1}, {"kitten", "sitting", 3}, {"flaw", "lawn", 2}, {"seed", "seed", 0},
+		// An adjacent swap is one edit (two for Levenshtein), by
+		// construction; "ca" to "abc" is 3 in the optimal string
+		// alignment distance (a substring is not edited twice), 2 in
+		// the unrestricted Damerau-Levenshtein distance: the usual
+		// example of the difference (recalled from memory).
+		{"modle", "model", 1}, {"ab", "ba", 1}, {"ca", "abc", 3},
 	}
 	for _, tc := range cases {
 		t.Run(tc.a+"-"+tc.b, func(t *testing.T) {
@@ -714,5 +722,28 @@ func TestLoadStudyTilde(t *testing.T) {
 	_, err := LoadStudy("~/study.yaml")
 	if err == nil || !strings.Contains(err.Error(), "not after --study=): write --study and the path apart (--study ~/study.yaml)") {
 		t.Fatalf("got %v", err)
+	}
+}
+
+// TestClosest: the suggestion for a mistyped name (study keys and flags),
+// by the rules Closest states; the names are made up for the test.
+func TestClosest(t *testing.T) {
+	names := []string{"model", "models-dir", "iterations", "region-buffers", "point-buffers", "point-thin", "out", "e"}
+	for _, c := range []struct{ in, want string }{
+		{"model", "model"},
+		{"Model", "model"},                   // case
+		{"region_buffers", "region-buffers"}, // '_' for '-'
+		{"modle", "model"},                   // one adjacent swap
+		{"iteratons", "iterations"},          // one letter left out
+		{"iter", "iterations"},               // the start of one name
+		{"point", ""},                        // the start of two: no guess
+		{"ou", ""},                           // too short for a guess
+		{"xyzzy", ""},                        // nothing near
+		{"regoin-bufers", "region-buffers"},
+		{"modelsdirectory", ""}, // too far from models-dir
+	} {
+		if got := Closest(c.in, names); got != c.want {
+			t.Errorf("Closest(%q) = %q, want %q", c.in, got, c.want)
+		}
 	}
 }
