@@ -74,6 +74,11 @@ type StudySummary struct {
 	// could be formed, or every one rests on fewer): the study's verdict
 	// is undetermined without any difference having been judged.
 	NotJudged bool
+	// Unscored is true when no model of the study is scored on any
+	// extent (a model with one value on every cell, say): then NotJudged
+	// is true for that reason, and UnscoredWhy gives it (unscoredWhy).
+	Unscored    bool
+	UnscoredWhy string
 	// BaseAreaKm2 is the area of BaseExtent (Results.Extents).
 	BaseAreaKm2 float64
 	// Occurrences is the SHA-256 of the study's occurrence file
@@ -192,10 +197,14 @@ type BatchCounts struct {
 	// Studies with results, by their AUC verdict; NotJudged counts the
 	// undetermined ones with no judged difference (StudySummary.NotJudged)
 	// and StandIn those whose base extent was replaced by another.
-	Sensitive, Robust, Undetermined, NotJudged, StandIn int
+	// NotJudgedUnscored counts those of NotJudged none of whose models is
+	// scored on any extent (StudySummary.Unscored).
+	Sensitive, Robust, Undetermined, NotJudged, NotJudgedUnscored, StandIn int
 	// Study x model pairs, by the model's AUC verdict; PairsNotJudged
 	// counts the undetermined pairs with no judged difference.
-	Pairs, PairsSensitive, PairsRobust, PairsUndetermined, PairsNotJudged int
+	// PairsNotJudgedUnscored counts those of PairsNotJudged whose model
+	// is scored on no extent.
+	Pairs, PairsSensitive, PairsRobust, PairsUndetermined, PairsNotJudged, PairsNotJudgedUnscored int
 	// Study x model pairs compared with a null on the base extent, by
 	// reading: TooFew on fewer than MinPairedPoints common test points
 	// (not read), the rest of NullPairs undefined. NullDistance counts the
@@ -245,7 +254,7 @@ func Summarize(studies []StudyResult) (*BatchSummary, error) {
 		s.addStudy(st, &ss)
 		s.Studies = append(s.Studies, ss)
 		for _, mv := range st.Results.Sensitivity.ModelVerdicts {
-			s.Verdicts = append(s.Verdicts, batchVerdict(st.ID, mv))
+			s.Verdicts = append(s.Verdicts, batchVerdict(st.Results, st.ID, mv))
 		}
 	}
 	slices.Sort(s.Tolerances)
@@ -281,8 +290,12 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 	if ss.StandIn != "" {
 		s.Counts.StandIn++
 	}
-	judged := false
+	judged, unscored := false, len(sens.ModelNames) > 0
+	var whys []string
 	for _, model := range sens.ModelNames {
+		why, none := unscoredWhy(r, model)
+		unscored = unscored && none
+		whys = append(whys, model+": "+why)
 		row := studyRow(r, st.ID, model)
 		row.Warnings = len(r.Warnings)
 		s.Rows = append(s.Rows, row)
@@ -291,6 +304,9 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 		s.Counts.add(row.Verdict, &s.Counts.PairsSensitive, &s.Counts.PairsRobust, &s.Counts.PairsUndetermined)
 		if row.Verdict == JudgementUndetermined && !row.Judged {
 			s.Counts.PairsNotJudged++
+			if none {
+				s.Counts.PairsNotJudgedUnscored++
+			}
 		}
 		if row.Null != "" {
 			s.Counts.NullPairs++
@@ -315,7 +331,44 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 	if ss.Verdict == JudgementUndetermined && !judged {
 		ss.NotJudged = true
 		s.Counts.NotJudged++
+		if unscored {
+			ss.Unscored, ss.UnscoredWhy = true, strings.Join(whys, "; ")
+			s.Counts.NotJudgedUnscored++
+		}
 	}
+}
+
+// unscoredWhy reports whether model is scored on no extent of r (some of
+// its scores recorded, none scored), and then
+// why: the reason its score on the base extent gives (the first extent's
+// when the base extent has none), as "scored on no extent; on extent
+// base: constant suitability (...)".
+func unscoredWhy(r *Results, model string) (string, bool) {
+	var first, base *Score
+	for i := range r.Scores {
+		sc := &r.Scores[i]
+		if sc.Model != model {
+			continue
+		}
+		if sc.Scored {
+			return "", false
+		}
+		if first == nil {
+			first = sc
+		}
+		if sc.Extent == r.Sensitivity.BaseExtent {
+			base = sc
+		}
+	}
+	switch {
+	case first == nil:
+		return "", false // no score of the model recorded: not known
+	case base != nil && base.NotScored != "":
+		return fmt.Sprintf("scored on no extent; on extent %s: %s", base.Extent, base.NotScored), true
+	case first.NotScored != "":
+		return fmt.Sprintf("scored on no extent; on extent %s: %s", first.Extent, first.NotScored), true
+	}
+	return "scored on no extent", true
 }
 
 // add counts verdict v into the matching counter.
@@ -366,6 +419,8 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
+		} else if why, none := unscoredWhy(r, model); none {
+			row.EffectNotJudged = "the model is " + why
 		} else {
 			row.EffectNotJudged = noDifferenceWhy(mv)
 		}
@@ -472,13 +527,16 @@ func baseNullComparison(r *Results, model string) *AboveNull {
 	return first
 }
 
-// batchVerdict turns one model verdict into a summary row.
-func batchVerdict(study string, mv ModelVerdict) BatchVerdict {
+// batchVerdict turns one model verdict of the study's results r into a
+// summary row.
+func batchVerdict(r *Results, study string, mv ModelVerdict) BatchVerdict {
 	v := BatchVerdict{Study: study, Model: mv.Model, Metric: mv.Metric, Label: mv.Label, Tolerance: mv.Tolerance,
 		Verdict: mv.Verdict, BaseExtent: mv.Base}
 	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 		d := mv.Diffs[mv.Largest]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
+	} else if why, none := unscoredWhy(r, mv.Model); none {
+		v.NotJudged = "the model is " + why
 	} else {
 		v.NotJudged = noDifferenceWhy(mv)
 	}

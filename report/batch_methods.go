@@ -64,7 +64,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	if c.Pairs > c.Succeeded {
 		results = append(results, fmt.Sprintf("Counted by study and model (%d pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for %d, robust for %d and undetermined for %d%s.",
-			c.Pairs, c.PairsSensitive, c.PairsRobust, c.PairsUndetermined, notJudgedTail(c.PairsNotJudged, c.PairsUndetermined)))
+			c.Pairs, c.PairsSensitive, c.PairsRobust, c.PairsUndetermined, notJudgedTail(c.PairsNotJudged, c.PairsNotJudgedUnscored, c.PairsUndetermined, true)))
 	}
 	if a := s.areaSentence(); a != "" {
 		results = append(results, a)
@@ -143,17 +143,17 @@ func (s *BatchSummary) CountSentence() string {
 		return fmt.Sprintf("None of the %d stud%s gave usable results.", c.Studies, ies(c.Studies))
 	}
 	out := fmt.Sprintf("AUC was extent-sensitive for %d of %d stud%s, robust for %d and undetermined for %d%s.",
-		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.Undetermined))
+		c.Sensitive, c.Succeeded, ies(c.Succeeded), c.Robust, c.Undetermined, notJudgedTail(c.NotJudged, c.NotJudgedUnscored, c.Undetermined, false))
 	if c.Succeeded == 1 {
 		// "1 of 1 study, robust for 0 and undetermined for 0" counts
 		// what a single verdict says in one word.
 		out = "AUC was " + oneVerdict(c) + " for the one study" + map[bool]string{true: " that gave usable results"}[c.Failed > 0] +
-			notJudgedTail(c.NotJudged, c.Undetermined) + "."
+			notJudgedTail(c.NotJudged, c.NotJudgedUnscored, c.Undetermined, false) + "."
 	}
 	if v, ok := sharedVerdict(c); ok && c.Succeeded >= 2 {
 		// Not "for 0 of 2 studies, robust for 2 and undetermined for 0",
 		// nor "for 12 of 12 studies, robust for 0 and undetermined for 0".
-		tail := notJudgedTail(c.NotJudged, c.Undetermined)
+		tail := notJudgedTail(c.NotJudged, c.NotJudgedUnscored, c.Undetermined, false)
 		all := fmt.Sprintf("all %d studies", c.Succeeded)
 		if c.Succeeded == 2 {
 			all = "both studies"
@@ -380,17 +380,34 @@ func (s *BatchSummary) nullKindTail() string {
 }
 
 // notJudgedTail says how many of the undetermined verdicts rest on no
-// judged difference at all.
-func notJudgedTail(notJudged, undetermined int) string {
-	switch {
-	case notJudged == 0:
+// judged difference at all, and why: no difference on MinPairedPoints or
+// more common test points, or (unscored of them) no model scored on any
+// extent. pairs: the counts are of study-model pairs, not of studies.
+func notJudgedTail(notJudged, unscored, undetermined int, pairs bool) string {
+	if notJudged == 0 {
 		return ""
-	case notJudged == undetermined && notJudged == 1:
-		return fmt.Sprintf(", which was not judged (no difference from the base extent on %d or more common test points, our cut-off)", MinPairedPoints)
-	case notJudged == undetermined:
-		return fmt.Sprintf(", none of which was judged (no difference from the base extent on %d or more common test points, our cut-off)", MinPairedPoints)
 	}
-	return fmt.Sprintf(", %d of which %s not judged (no difference from the base extent on %d or more common test points, our cut-off)", notJudged, map[bool]string{true: "was", false: "were"}[notJudged == 1], MinPairedPoints)
+	few := fmt.Sprintf("no difference from the base extent on %d or more common test points, our cut-off", MinPairedPoints)
+	var why string
+	switch {
+	case unscored == 0:
+		why = few
+	case unscored == notJudged && pairs:
+		why = map[bool]string{true: "its model is", false: "their models are"}[unscored == 1] + " scored on no extent"
+	case unscored == notJudged:
+		why = "no model of " + map[bool]string{true: "it", false: "them"}[unscored == 1] + " is scored on any extent"
+	case pairs:
+		why = fmt.Sprintf("%s; in %d, the model is scored on no extent", few, unscored)
+	default:
+		why = fmt.Sprintf("%s; in %d, no model is scored on any extent", few, unscored)
+	}
+	switch {
+	case notJudged == undetermined && notJudged == 1:
+		return ", which was not judged (" + why + ")"
+	case notJudged == undetermined:
+		return ", none of which was judged (" + why + ")"
+	}
+	return fmt.Sprintf(", %d of which %s not judged (%s)", notJudged, map[bool]string{true: "was", false: "were"}[notJudged == 1], why)
 }
 
 // notJudgedSentence names the studies counted undetermined without any
@@ -398,7 +415,10 @@ func notJudgedTail(notJudged, undetermined int) string {
 func (s *BatchSummary) notJudgedSentence() string {
 	var ids []string
 	for _, st := range s.Studies {
-		if st.OK && st.NotJudged {
+		switch {
+		case st.OK && st.Unscored:
+			ids = append(ids, fmt.Sprintf("%s (%s)", st.ID, st.UnscoredWhy))
+		case st.OK && st.NotJudged:
 			ids = append(ids, st.ID)
 		}
 	}

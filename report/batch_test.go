@@ -17,6 +17,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // effect is one hand-made paired AUC difference from the base extent.
@@ -96,7 +97,9 @@ func handStudy(tol float64, models ...handModel) *Results {
 		}
 		mvs = append(mvs, mv)
 		if hm.points > 0 {
-			r.Scores = append(r.Scores, Score{Model: hm.name, Extent: "base", TestPoints: hm.points})
+			// Scored as a run records a model with test points on the
+			// base extent.
+			r.Scores = append(r.Scores, Score{Model: hm.name, Extent: "base", Scored: true, TestPoints: hm.points})
 		}
 		if hm.null != nil {
 			n := hm.null
@@ -940,5 +943,66 @@ func TestSummaryDropsStaleFigure(t *testing.T) {
 				t.Errorf("the emptied %s is still there (stat: %v)", SummaryFigures, err)
 			}
 		}
+	}
+}
+
+// TestSummaryUnscoredModel: a study whose one model is scored on no
+// extent (one value on every cell) was counted "not judged (no difference
+// from the base extent on 10 or more common test points, our cut-off)",
+// true but not why: its model ranks nothing. The counts, the sentences
+// and both tables now give the model's own reason; a study not judged for
+// too few points keeps the cut-off's wording beside it.
+func TestSummaryUnscoredModel(t *testing.T) {
+	flat := handStudy(DefaultToleranceAUC, handModel{name: "flat", aucs: map[string]float64{}})
+	for _, e := range []string{"base", "wide"} {
+		flat.Scores = append(flat.Scores, Score{Model: "flat", Extent: e, NotScored: metrics.ReasonConstant, TestPoints: 90})
+	}
+	lone := handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.9}, points: 1})
+	studies := []StudyResult{handBatch()[1], {ID: "const", Report: "const/report.html", Results: flat}}
+	s, err := Summarize(studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := s.Counts; c.NotJudged != 1 || c.NotJudgedUnscored != 1 || c.PairsNotJudgedUnscored != 1 {
+		t.Fatalf("counts %+v: want 1 study and 1 pair not judged, unscored", c)
+	}
+	why := "scored on no extent; on extent base: " + metrics.ReasonConstant
+	md := s.MethodsText()
+	for _, want := range []string{
+		"undetermined for 1, which was not judged (no model of it is scored on any extent).",
+		"Not judged, so counted neither robust nor extent-sensitive: const (flat: " + why + ").",
+	} {
+		if !strings.Contains(md, want) {
+			t.Errorf("methods text lacks %q:\n%s", want, md)
+		}
+	}
+	if strings.Contains(md, "not judged (no difference from the base extent on") {
+		t.Errorf("methods text gives the cut-off as the reason of a model scored nowhere:\n%s", md)
+	}
+	for _, c := range []struct {
+		name   string
+		write  func(io.Writer) error
+		column string
+	}{
+		{"summary.csv", s.WriteCSV, "auc_diff_not_judged_reason"},
+		{"summary_verdicts.csv", s.WriteVerdictsCSV, "not_judged_reason"},
+	} {
+		recs := csvRecords(t, c.write)
+		col := slices.Index(recs[0], c.column)
+		for _, rec := range recs[1:] {
+			if rec[0] == "const" && rec[col] != "the model is "+why {
+				t.Errorf("%s: const %s = %q, want %q", c.name, c.column, rec[col], "the model is "+why)
+			}
+		}
+	}
+
+	// Mixed: one study not judged for too few points, one for a model
+	// scored nowhere.
+	s, err = Summarize(append(studies, StudyResult{ID: "lone", Report: "lone/report.html", Results: lone}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := "undetermined for 2, none of which was judged (no difference from the base extent on 10 or more common test points, our cut-off; in 1, no model is scored on any extent)"; !strings.Contains(s.MethodsText(), want) {
+		t.Errorf("methods text lacks %q:\n%s", want, s.MethodsText())
 	}
 }

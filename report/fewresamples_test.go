@@ -230,7 +230,7 @@ func TestFewResamplesNotJudged(t *testing.T) {
 	}
 	// The batch summary carries the reason beside the numbers.
 	for _, mv := range s39.ModelVerdicts {
-		if bv := batchVerdict("s", mv); resampled[mv.Metric] && bv.Defined && bv.NotJudged != reason {
+		if bv := batchVerdict(r39, "s", mv); resampled[mv.Metric] && bv.Defined && bv.NotJudged != reason {
 			t.Errorf("batch verdict %s of %s: reason %q", mv.Metric, mv.Model, bv.NotJudged)
 		}
 	}
