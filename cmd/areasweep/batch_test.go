@@ -166,6 +166,11 @@ func TestBatch(t *testing.T) {
 			!strings.Contains(se, "running the same command again retries it, once what its line names is fixed") {
 			t.Errorf("--jobs %s: stdout %q stderr %q", jobs, so, se)
 		}
+		// The failed study's line names its row of the table (line 10:
+		// six shared lines, the header, alpha, beta, broken).
+		if want := "\n  broken: " + table + " line 10: "; !strings.Contains(se, want) {
+			t.Errorf("--jobs %s: stderr lacks the failed study's table line %q:\n%s", jobs, want, se)
+		}
 		if forbidden.MatchString(se) {
 			t.Errorf("--jobs %s: raw library text on stderr: %s", jobs, se)
 		}

@@ -11,6 +11,7 @@ import (
 
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/slurm"
 	"areasweep/extent"
@@ -212,6 +213,9 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 		var de *damagedError
 		var ue *batch.UnreadableError
 		var ne *outdir.NotEmptyError
+		// row: the study's table line is named, but not for a folder
+		// that --force gets past (nothing in the row to fix).
+		row := ""
 		switch {
 		case errors.As(err, &se):
 			stale++
@@ -219,10 +223,13 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 			occupied++ // its folder holds files but no completion marker
 		case errors.As(err, &de), errors.As(err, &ue):
 			damaged++ // the user's to fix first: see its line
+			row = tableLine(o, studies[i], err)
+		default:
+			row = tableLine(o, studies[i], err)
 		}
 		ids = append(ids, studies[i].id)
 		if len(lines) < maxFailuresShown {
-			lines = append(lines, "\n  "+studies[i].id+": "+oneLine(fault.UserText(err)))
+			lines = append(lines, "\n  "+studies[i].id+": "+row+oneLine(fault.UserText(err)))
 		}
 	}
 	if len(ids) > maxFailuresShown {
@@ -287,6 +294,19 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 	}
 	return fault.Shown(fmt.Errorf("%s: %s; %s%s:%s",
 		count, strings.Join(ids, ", "), where, again, strings.Join(lines, "")))
+}
+
+// tableLine is "TABLE line N: ", the study's row in the study table, for
+// the final message's line of a failed study, so that the row to fix is
+// found in a table of hundreds; "" when the error names it already (an
+// input missing when the table was read, inputs.BatchError) or the line
+// is not known.
+func tableLine(o *Options, st *study, err error) string {
+	var be *inputs.BatchError
+	if st.line <= 0 || errors.As(err, &be) {
+		return ""
+	}
+	return fmt.Sprintf("%s line %d: ", o.Table, st.line)
 }
 
 // forceNote adds to the error of a study whose recorded input cannot be
