@@ -67,6 +67,11 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 	if err != nil {
 		return fault.Internal(err)
 	}
+	if s.Software == (report.Software{}) {
+		// No study gave results to take the version from: the one
+		// writing the summary, which ran them (or was to).
+		s.Software = report.Software{Name: "areasweep", Version: o.Version}
+	}
 	if err := writeSummaryFiles(o.Out, s); err != nil {
 		// The summary's files are each replaced whole; the studies'
 		// folders are not touched.

@@ -44,3 +44,23 @@ func TestSummaryStudyRemovedAfterFinishing(t *testing.T) {
 		})
 	}
 }
+
+// TestSummaryVersionWithoutResults: a batch none of whose studies gave
+// results wrote "Each study of the batch was to be run with areasweep
+// into its own folder", without the version that every other summary
+// takes from the studies' results: it now gives the version of the
+// areasweep that wrote the summary.
+func TestSummaryVersionWithoutResults(t *testing.T) {
+	out := t.TempDir()
+	errs := []error{errors.New("model m: m.tif is not a raster GDAL can read")}
+	if err := writeSummary(&Options{Out: out, Version: "9.8.7"}, []*study{{id: "s1", dir: filepath.Join(out, "s1")}}, errs); err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "summary_methods.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := "Each study of the batch was to be run with areasweep 9.8.7 into its own folder"; !strings.Contains(string(b), want) {
+		t.Errorf("summary_methods.md lacks %q:\n%s", want, b)
+	}
+}
