@@ -214,13 +214,16 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 		var ue *batch.UnreadableError
 		var ne *outdir.NotEmptyError
 		// row: the study's table line is named, but not for a folder
-		// that --force gets past (nothing in the row to fix).
+		// that --force gets past or another run holds (nothing in the
+		// row to fix).
 		row := ""
+		var iu *outdir.InUseError
 		switch {
 		case errors.As(err, &se):
 			stale++
 		case errors.As(err, &ne):
 			occupied++ // its folder holds files but no completion marker
+		case errors.As(err, &iu):
 		case errors.As(err, &de), errors.As(err, &ue):
 			damaged++ // the user's to fix first: see its line
 			row = tableLine(o, studies[i], err)

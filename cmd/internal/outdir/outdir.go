@@ -203,6 +203,15 @@ func (e *NotEmptyError) Error() string {
 	return fmt.Sprintf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", e.Out)
 }
 
+// InUseError is the refusal of an --out another run holds (its lock):
+// nothing about the inputs or settings is wrong, the run can only wait
+// (a batch names no table row for it).
+type InUseError struct{ Out, Who string }
+
+func (e *InUseError) Error() string {
+	return fmt.Sprintf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", e.Out, e.Who)
+}
+
 // foreignError is the message for foreign files in a folder --force
 // would replace.
 func foreignError(out string, found []string) error {
@@ -673,7 +682,7 @@ func (d *Dir) takeLock(out string) error {
 			if pid := strings.TrimSpace(string(owner)); pid != "" {
 				who += " (process " + pid + ")"
 			}
-			return fault.BadInput(fmt.Errorf("--out %s is in use: %s is writing to it; wait for it to finish or choose another --out", out, who))
+			return fault.BadInput(&InUseError{Out: out, Who: who})
 		}
 		if sameFile(f, d.lockPath()) || try == 10 {
 			f.Truncate(0)
