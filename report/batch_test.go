@@ -717,6 +717,15 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 	if s.Counts.NotJudged != 2 {
 		t.Fatalf("not judged count %d, want 2 (lone, undef)", s.Counts.NotJudged)
 	}
+	checkNotJudgedReasons(t, s, map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed",
+		"undef": "no paired difference from the base extent could be formed: the metric is undefined on the base extent"})
+}
+
+// checkNotJudgedReasons checks the reason columns of summary.csv and
+// summary_verdicts.csv on every row of the studies in want (study id ->
+// reason); every row must belong to one of them.
+func checkNotJudgedReasons(t *testing.T, s *BatchSummary, want map[string]string) {
+	t.Helper()
 	for _, c := range []struct {
 		name   string
 		write  func(io.Writer) error
@@ -727,11 +736,10 @@ func TestSummaryNoDifferenceReason(t *testing.T) {
 	} {
 		recs := csvRecords(t, c.write)
 		col := slices.Index(recs[0], c.column)
-		want := map[string]string{"beta": "", "lone": "no paired difference from the base extent could be formed",
-			"undef": "no paired difference from the base extent could be formed: the metric is undefined on the base extent"}
 		for _, rec := range recs[1:] {
-			if got := rec[col]; got != want[rec[0]] {
-				t.Errorf("%s %s %s = %q, want %q", c.name, rec[0], c.column, got, want[rec[0]])
+			w, ok := want[rec[0]]
+			if got := rec[col]; !ok || got != w {
+				t.Errorf("%s %s %s = %q, want %q", c.name, rec[0], c.column, got, w)
 			}
 		}
 	}
@@ -979,22 +987,7 @@ func TestSummaryUnscoredModel(t *testing.T) {
 	if strings.Contains(md, "not judged (no difference from the base extent on") {
 		t.Errorf("methods text gives the cut-off as the reason of a model scored nowhere:\n%s", md)
 	}
-	for _, c := range []struct {
-		name   string
-		write  func(io.Writer) error
-		column string
-	}{
-		{"summary.csv", s.WriteCSV, "auc_diff_not_judged_reason"},
-		{"summary_verdicts.csv", s.WriteVerdictsCSV, "not_judged_reason"},
-	} {
-		recs := csvRecords(t, c.write)
-		col := slices.Index(recs[0], c.column)
-		for _, rec := range recs[1:] {
-			if rec[0] == "const" && rec[col] != "the model is "+why {
-				t.Errorf("%s: const %s = %q, want %q", c.name, c.column, rec[col], "the model is "+why)
-			}
-		}
-	}
+	checkNotJudgedReasons(t, s, map[string]string{"beta": "", "const": "the model is " + why})
 
 	// Mixed: one study not judged for too few points, one for a model
 	// scored nowhere.
