@@ -161,13 +161,69 @@ var dashes = [][]vg.Length{
 	{vg.Points(5), vg.Points(2), vg.Points(1.2), vg.Points(2), vg.Points(1.2), vg.Points(2)},
 }
 
-// glyphs are distinct marker shapes, one per model: first the five the
-// nulls never take (filled circle, triangle and square, cross, plus), then
-// the hollow ones they do (nullLineStyle), so that up to five models are
-// told from any null by marker alone in a greyscale print.
+// glyphs are distinct marker shapes, one per model, none of them one the
+// nulls take (the hollow ring, square and triangle, nullLineStyle): filled
+// circle, triangle and square, cross, plus, then filled diamond, downward
+// triangle and five-pointed star (our own, drawn as polygons), so that up
+// to eight models are told from any null by marker alone in a greyscale
+// print (the sixth to eighth took the nulls' hollow shapes before).
 var glyphs = []draw.GlyphDrawer{
 	draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{}, draw.CrossGlyph{},
-	draw.PlusGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.RingGlyph{},
+	draw.PlusGlyph{}, polygonGlyph{diamond}, polygonGlyph{downTriangle}, polygonGlyph{star},
+}
+
+// polygonShape names the outline a polygonGlyph fills.
+type polygonShape int
+
+const (
+	diamond polygonShape = iota
+	downTriangle
+	star
+)
+
+// polygonGlyph is a filled polygon marker centred on the point, its size
+// set by the style's radius as gonum's filled markers are: a diamond of
+// half-diagonal 1.3 r (about the area of BoxGlyph's square of side 2 r),
+// a downward triangle the size of PyramidGlyph's upward one, and a
+// five-pointed star of outer radius 1.35 r and inner radius 0.55 r (our
+// choices, so that the marks look about as heavy as the others).
+type polygonGlyph struct{ shape polygonShape }
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (g polygonGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetColor(sty.Color)
+	r := sty.Radius
+	var vs []vg.Point
+	switch g.shape {
+	case diamond:
+		d := r * 1.3
+		vs = []vg.Point{{X: 0, Y: d}, {X: d, Y: 0}, {X: 0, Y: -d}, {X: -d, Y: 0}}
+	case downTriangle:
+		// PyramidGlyph's radius and corners, upside down.
+		t := r + (r-r*vg.Length(math.Sin(math.Pi/6)))/2
+		x := t * vg.Length(math.Cos(math.Pi/6))
+		y := t * vg.Length(math.Sin(math.Pi/6))
+		vs = []vg.Point{{X: 0, Y: -t}, {X: x, Y: y}, {X: -x, Y: y}}
+	case star:
+		for k := range 10 {
+			a := math.Pi/2 + float64(k)*math.Pi/5
+			l := r * 1.35
+			if k%2 == 1 {
+				l = r * 0.55
+			}
+			vs = append(vs, vg.Point{X: l * vg.Length(math.Cos(a)), Y: l * vg.Length(math.Sin(a))})
+		}
+	}
+	var p vg.Path
+	for i, v := range vs {
+		if i == 0 {
+			p.Move(pt.Add(v))
+		} else {
+			p.Line(pt.Add(v))
+		}
+	}
+	p.Close()
+	c.Fill(p)
 }
 
 // modelColors are the models' colours: the "muted" qualitative scheme

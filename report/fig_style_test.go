@@ -39,7 +39,7 @@ func TestModelStylesDistinct(t *testing.T) {
 	}
 	mark := map[string]int{}
 	for i := range 72 {
-		k := fmt.Sprintf("%s %T", rgb(modelColor(i)), modelGlyph(i))
+		k := fmt.Sprintf("%s %T%v", rgb(modelColor(i)), modelGlyph(i), modelGlyph(i)) // %v: the polygonGlyph shapes share a type
 		if j, ok := mark[k]; ok {
 			t.Errorf("models %d and %d share colour and marker", j+1, i+1)
 		}
@@ -60,10 +60,11 @@ func TestModelStylesDistinct(t *testing.T) {
 }
 
 // TestModelsApartFromNullsInGrey: in a greyscale print colour is gone, so
-// a model must differ from every null by its line and, for the first five
-// models, by its marker too. The third model was drawn dotted (1.2 pt
-// dots), as the nulls are, with the hollow square of the third and fourth
-// null (an audit of the figures with six models and two nulls).
+// a model must differ from every null by its line and by its marker. The
+// third model was drawn dotted (1.2 pt dots), as the nulls are, with the
+// hollow square of the third and fourth null (an audit of the figures with
+// six models and two nulls); the sixth to eighth models took the nulls'
+// hollow triangle, square and ring.
 func TestModelsApartFromNullsInGrey(t *testing.T) {
 	// dotted: every dash of the pattern no longer than 2 pt.
 	dotted := func(d []vg.Length) bool {
@@ -85,9 +86,9 @@ func TestModelsApartFromNullsInGrey(t *testing.T) {
 			t.Errorf("model %d is drawn dotted (%v), as the nulls are", i+1, modelDash(i))
 		}
 	}
-	for i := range 5 {
+	for i := range len(glyphs) {
 		for k := range 6 {
-			if _, gs := nullLineStyle(k); fmt.Sprintf("%T", gs.Shape) == fmt.Sprintf("%T", modelGlyph(i)) {
+			if _, gs := nullLineStyle(k); fmt.Sprintf("%T%v", gs.Shape, gs.Shape) == fmt.Sprintf("%T%v", modelGlyph(i), modelGlyph(i)) {
 				t.Errorf("model %d takes the marker %T of null %d", i+1, modelGlyph(i), k+1)
 			}
 		}
