@@ -854,7 +854,8 @@ func findColumns(hdr []string, delim rune) (columns, error) {
 	}
 	if !found[2] {
 		return c, fmt.Errorf("%w: no field named role in %s; add a column named role "+
-			"holding train or test on every line; %s", ErrNoRole, foundHeader, roleAdvice)
+			"holding train or test on every line (training and test records kept in two files go into one table: "+
+			"add the column to each, train in one and test in the other, and join them under one header); %s", ErrNoRole, foundHeader, roleAdvice)
 	}
 	return c, nil
 }

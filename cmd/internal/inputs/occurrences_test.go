@@ -152,7 +152,7 @@ func errCases() []errCase {
 		{name: "header after blank lines", in: "\n\nid;name\n1;a\n", is: ErrNoCoordinates, line: 3, contains: []string{"semicolon-separated"}},
 		{name: "no role column in a wide header", in: "a1\ta2\ta3\ta4\ta5\ta6\ta7\ta8\ta9\ta10\ta11\ta12\ta13\tdecimalLatitude\tdecimalLongitude\n1\t2\t3\t4\t5\t6\t7\t8\t9\t10\t11\t12\t13\t1\t2\n", is: ErrNoRole, line: 1,
 			contains: []string{`15 tab-separated fields ["a1" "a2"`, `"a12" and 3 more]`, "add a column named role"}},
-		{name: "no role column", in: "lon,lat,set\n1,2,train\n", is: ErrNoRole, line: 1, contains: []string{`"set"`, "add a column named role", "train, training, test and testing"}},
+		{name: "no role column", in: "lon,lat,set\n1,2,train\n", is: ErrNoRole, line: 1, contains: []string{`"set"`, "add a column named role", "train, training, test and testing", "kept in two files go into one table"}},
 		{name: "two longitude columns", in: "x,lon,lat,role\n1,1,2,train\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"x" and "lon"`, "longitude", "rename or delete one"}},
 		{name: "two role columns", in: "lon,lat,role,ROLE\n1,2,train,test\n", is: ErrAmbiguousColumn, line: 1, contains: []string{`"role" and "ROLE"`}},
 		// A portal's export: records without coordinates are named all
