@@ -442,7 +442,7 @@ func CheckShardSet(headers []ShardHeader) error {
 		field := ""
 		switch {
 		case h.Tool != ref.Tool:
-			field = fmt.Sprintf("areasweep version (%s vs %s)", ref.Tool, h.Tool)
+			field = fmt.Sprintf("areasweep version or build (%s vs %s)", ref.Tool, h.Tool)
 		case !slices.Equal(h.Inputs, ref.Inputs):
 			field = "input files or their checksums" + inputDiff(ref.Inputs, h.Inputs)
 		case h.Settings != ref.Settings:

@@ -54,7 +54,7 @@ const batchExample = `  # start from the example table
   areasweep batch studies.csv --out /scratch/runs --slurm --submit`
 
 func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
-	opts := &BatchOptions{IO: streams, Options: batchrun.Options{Version: version}}
+	opts := &BatchOptions{IO: streams, Options: batchrun.Options{Version: version, Build: buildID()}}
 	var memory string
 	cmd := &cobra.Command{
 		Use:     "batch TABLE",

@@ -257,7 +257,7 @@ func slurmPending(o *Options, p *slurm.Plan, studies []*study) (pending []int, s
 		if t.Shards > 1 {
 			// A shard's folder is the batch's own: one made from other
 			// settings runs again, as in a local batch.
-			switch ss, _, _ := shardState(o.Out, st, t.Shard, t.Shards); ss {
+			switch ss, _, _ := shardState(o, st, t.Shard, t.Shards); ss {
 			case stateDone:
 				continue
 			case stateStale:
