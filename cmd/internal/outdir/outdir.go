@@ -563,6 +563,22 @@ func realPath(abs string) string {
 	}
 }
 
+// RealPath is path made absolute, with the symbolic links of its longest
+// existing prefix resolved.
+func RealPath(path string) string {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return path
+	}
+	return realPath(abs)
+}
+
+// Inside reports whether path is the folder dir or lies inside it, both
+// taken with their symbolic links resolved (a link to dir names dir).
+func Inside(path, dir string) bool {
+	return within(RealPath(path), RealPath(dir))
+}
+
 // within reports whether path is dir or lies inside it.
 func within(path, dir string) bool {
 	if path == dir {
