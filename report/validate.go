@@ -60,6 +60,7 @@ func validate(file string, r *Results) error {
 	v.curves(r.Curves)
 	v.curvesComplete(r)
 	v.omissions(r.Omissions)
+	v.omissionsComplete(r)
 	v.points(r.Points, r.Grid)
 	v.pointCounts(r.PointCounts, r.Points)
 	if r.Preview != nil {
@@ -310,6 +311,33 @@ func (v *validator) omissions(om []Omission) {
 			v.fail(at, "model %q is not in models", o.Model)
 		}
 		v.finite(at+".value", o.Value)
+	}
+}
+
+// omissionsComplete checks that omissions hold, for every threshold of a
+// scored model (its scores' thresholds, which do not depend on the
+// extent; fixed thresholds share one name and differ by value), the list
+// of the test points the model omits there: a list emptied or edited by
+// hand dropped the omitted points from the maps without a word.
+func (v *validator) omissionsComplete(r *Results) {
+	type key struct {
+		model, name string
+		value       float64
+	}
+	has := map[key]bool{}
+	for _, o := range r.Omissions {
+		has[key{o.Model, string(o.Threshold), o.Value}] = true
+	}
+	for _, s := range r.Scores {
+		if !s.Scored {
+			continue
+		}
+		for _, t := range s.Thresholds {
+			if !has[key{s.Model, string(t.Name), t.Value}] {
+				v.fail("omissions", "hold no list of the test points model %s omits at the threshold %s (value %v, as its scores give it); a run writes one for every threshold of a scored model", s.Model, t.Name, t.Value)
+				return
+			}
+		}
 	}
 }
 
