@@ -248,9 +248,13 @@ func runUnit(ctx context.Context, o *Options, st *study, u unit) (int, error) {
 	}
 	m = batch.Marker{"study": st.id, "settings": st.settings, markerValues: string(st.canonical)}
 	if u.merge {
+		// The partial files by name, not their folders: a folder keeps
+		// the file of an earlier split (--shards changed between two
+		// runs), which the merge would refuse as a mix of splits on
+		// every rerun.
 		files := make([]string, o.Shards)
 		for k := range files {
-			files[k] = shardDir(o.Out, st.id, k+1)
+			files[k] = filepath.Join(shardDir(o.Out, st.id, k+1), pipeline.ShardFileName(k+1, o.Shards))
 		}
 		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: o.Version, Build: o.Build}
 		return warnings(pipeline.Merge(ctx, mo, pio))
