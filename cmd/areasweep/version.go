@@ -35,15 +35,19 @@ var buildID = sync.OnceValue(func() string {
 })
 
 // executableID is "build " and the first 12 hex digits of the SHA-256 of
-// the running executable.
+// the running executable. On Linux /proc/self/exe is the file this process
+// runs even when a rebuild has replaced the one at its path since; the
+// path is the fallback elsewhere.
 func executableID() (string, error) {
-	exe, err := os.Executable()
+	f, err := os.Open("/proc/self/exe")
 	if err != nil {
-		return "", err
-	}
-	f, err := os.Open(exe)
-	if err != nil {
-		return "", err
+		exe, xerr := os.Executable()
+		if xerr != nil {
+			return "", xerr
+		}
+		if f, err = os.Open(exe); err != nil {
+			return "", err
+		}
 	}
 	defer f.Close()
 	h := sha256.New()
