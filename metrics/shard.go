@@ -442,7 +442,7 @@ func CheckShardSet(headers []ShardHeader) error {
 		field := ""
 		switch {
 		case h.Tool != ref.Tool:
-			field = fmt.Sprintf("areasweep version (%s vs %s)", ref.Tool, h.Tool)
+			field = fmt.Sprintf("areasweep version or build (%s vs %s)", ref.Tool, h.Tool)
 		case !slices.Equal(h.Inputs, ref.Inputs):
 			field = "input files or their checksums" + inputDiff(ref.Inputs, h.Inputs)
 		case h.Settings != ref.Settings:
@@ -512,16 +512,37 @@ func CheckShardSet(headers []ShardHeader) error {
 	return nil
 }
 
-// inputDiff names the first input that differs between a and b.
+// inputDiff names how the inputs a and b differ: the inputs of one side
+// only (by name), else the first that differs in place or checksum.
 func inputDiff(a, b []InputChecksum) string {
-	for i := range max(len(a), len(b)) {
+	// By name first: a model given to one run and not to the other was
+	// named by its place ("input 2 is \"model:coarse\" vs
+	// \"occurrences\""), which left the user to work out which.
+	var only [2][]string
+	for k, side := range [2][2][]InputChecksum{{a, b}, {b, a}} {
+		for _, x := range side[0] {
+			if !slices.ContainsFunc(side[1], func(y InputChecksum) bool { return y.Name == x.Name }) {
+				only[k] = append(only[k], fmt.Sprintf("%q", x.Name))
+			}
+		}
+	}
+	var parts []string
+	if len(only[1]) > 0 {
+		parts = append(parts, "extra input "+strings.Join(only[1], ", ")+" in the second")
+	}
+	if len(only[0]) > 0 {
+		parts = append(parts, "input "+strings.Join(only[0], ", ")+" missing in the second")
+	}
+	if len(parts) > 0 {
+		return ": " + strings.Join(parts, "; ")
+	}
+	if len(a) != len(b) { // one name given more often
+		return fmt.Sprintf(": %d inputs vs %d (%s vs %s)", len(a), len(b), inputNames(a), inputNames(b))
+	}
+	for i := range a {
 		switch {
-		case i >= len(a):
-			return fmt.Sprintf(": extra input %q", b[i].Name)
-		case i >= len(b):
-			return fmt.Sprintf(": missing input %q", a[i].Name)
 		case a[i].Name != b[i].Name:
-			return fmt.Sprintf(": input %d is %q vs %q", i+1, a[i].Name, b[i].Name)
+			return fmt.Sprintf(": the same inputs in another order (%s vs %s; the --model, --null and --extra flags in another order)", inputNames(a), inputNames(b))
 		case a[i].SHA256 != b[i].SHA256:
 			return fmt.Sprintf(": %q has another checksum", a[i].Name)
 		case a[i] != b[i]:
@@ -529,4 +550,13 @@ func inputDiff(a, b []InputChecksum) string {
 		}
 	}
 	return ""
+}
+
+// inputNames lists the names of ins, comma-separated.
+func inputNames(ins []InputChecksum) string {
+	names := make([]string, len(ins))
+	for i, in := range ins {
+		names[i] = in.Name
+	}
+	return strings.Join(names, ", ")
 }

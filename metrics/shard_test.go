@@ -72,7 +72,25 @@ func TestCheckShardSetRefuses(t *testing.T) {
 		{"extra input", func(h []ShardHeader) []ShardHeader {
 			h[1].Inputs = append(h[1].Inputs[:2:2], InputChecksum{Name: "region", SHA256: hexOf("r")})
 			return h
-		}, ErrShardMismatch, `extra input "region"`},
+		}, ErrShardMismatch, `extra input "region" in the second`},
+		// A model given to one run only was named by its place: input 2
+		// is "model:glm" vs "occurrences".
+		{"a model of one run only", func(h []ShardHeader) []ShardHeader {
+			h[1].Inputs = []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm")}, {Name: "model:glm", SHA256: hexOf("glm")}, {Name: "occurrences", SHA256: hexOf("occ")}}
+			return h
+		}, ErrShardMismatch, `extra input "model:glm" in the second`},
+		{"a model missing", func(h []ShardHeader) []ShardHeader { h[1].Inputs = h[1].Inputs[1:]; return h }, ErrShardMismatch, `input "model:gbm" missing in the second`},
+		{"models in another order", func(h []ShardHeader) []ShardHeader {
+			for i := range h {
+				h[i].Inputs = []InputChecksum{{Name: "model:gbm", SHA256: hexOf("gbm")}, {Name: "model:glm", SHA256: hexOf("glm")}}
+			}
+			h[1].Inputs = []InputChecksum{h[1].Inputs[1], h[1].Inputs[0]}
+			return h
+		}, ErrShardMismatch, "the same inputs in another order (model:gbm, model:glm vs model:glm, model:gbm"},
+		{"a name given twice", func(h []ShardHeader) []ShardHeader {
+			h[1].Inputs = append(h[1].Inputs[:2:2], InputChecksum{Name: "occurrences", SHA256: hexOf("occ")})
+			return h
+		}, ErrShardMismatch, "2 inputs vs 3"},
 		{"other tool", func(h []ShardHeader) []ShardHeader { h[1].Tool = "v1.2.4"; return h }, ErrShardMismatch, "areasweep version"},
 		{"other N", func(h []ShardHeader) []ShardHeader { return append(h[:2], shardSet(4, 10)[2]) }, ErrShardMismatch, "shard count (3 vs 4)"},
 		{"other blocks", func(h []ShardHeader) []ShardHeader { return append(h[:2], shardSet(3, 11)[2]) }, ErrShardMismatch, "raster block count"},

@@ -1681,8 +1681,8 @@ func TestPageSaysWhatItShows(t *testing.T) {
 		t.Fatal("the sample has no chain along which test points enter: the case is not tested")
 	}
 	checkWords(t, "page", p, []string{
-		fmt.Sprintf(`<p class="basenote" id="base-note">The base extent is base (kind %s: %s; %s km²; %d of the %d test points). Every &#34;difference from base&#34; on this page`,
-			base.Kind, base.Params, fmtArea(base.AreaKm2), base.TestPoints, r.PointCounts.Test),
+		fmt.Sprintf(`<p class="basenote" id="base-note">The base extent is base (the study region as given, %s; %s km²; %d of the %d test points). Every &#34;difference from base&#34; on this page`,
+			base.Params, fmtArea(base.AreaKm2), base.TestPoints, r.PointCounts.Test),
 		"<h3>Nested rings</h3><p>" + template.HTMLEscapeString(chainsEnteringNote) + "</p>",
 		"The rows of " + DistanceNullName + " (distance-only null) are not a model&#39;s",
 		`<th scope="col">area (km²)</th>`,

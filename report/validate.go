@@ -55,9 +55,12 @@ func validate(file string, r *Results) error {
 	v.extentList(r.Extents)
 	v.scores(r)
 	v.paired(r.Paired)
+	v.pairedComplete(r)
 	v.rings(r.Rings)
 	v.curves(r.Curves)
+	v.curvesComplete(r)
 	v.omissions(r.Omissions)
+	v.omissionsComplete(r)
 	v.points(r.Points, r.Grid)
 	v.pointCounts(r.PointCounts, r.Points)
 	if r.Preview != nil {
@@ -96,6 +99,9 @@ func (v *validator) header(r *Results) {
 	if len(r.Extents) == 0 {
 		v.fail("extents", "the list is empty; a run lists every extent of its family, the base extent first")
 	}
+	if len(r.Inputs) == 0 {
+		v.fail("inputs", "the list is empty; a run records every input file it read (the models, the occurrences, the region)")
+	}
 }
 
 // modelList checks each model's name (set, not repeated) and values, and
@@ -107,6 +113,14 @@ func (v *validator) modelList(ms []Model) {
 			v.fail(at, "name is empty or repeated")
 		}
 		v.models[m.Name] = true
+		switch {
+		case m.Role == RoleModel && m.NullKind != "":
+			v.fail(at+".null_kind", "%q is set on a model (role %s); a run writes it for a null only", m.NullKind, RoleModel)
+		case m.Role == RoleNull && m.NullKind != NullDistance && m.NullKind != NullRaster:
+			v.fail(at+".null_kind", "%q is not %s or %s", m.NullKind, NullDistance, NullRaster)
+		case m.Role != RoleModel && m.Role != RoleNull:
+			v.fail(at+".role", "%q is not %s or %s", m.Role, RoleModel, RoleNull)
+		}
 		v.finite(at+".value_min", m.ValueMin)
 		v.finite(at+".value_max", m.ValueMax)
 		v.unit(at+".floor_share", m.FloorShare)
@@ -125,6 +139,9 @@ func (v *validator) extentList(es []Extent) {
 			v.fail(at+".duplicate_of", "%q is not an earlier extent", e.DuplicateOf)
 		}
 		v.extents[e.ID] = true
+		if !slices.Contains(vocab.Kinds, e.Kind) {
+			v.fail(at+".kind", "%q is not an extent kind (%s)", e.Kind, kindList())
+		}
 		switch e.Status {
 		case vocab.StatusOK, vocab.StatusEmpty, vocab.StatusDuplicate:
 		default:
@@ -201,6 +218,38 @@ func (v *validator) paired(ps []Paired) {
 	}
 }
 
+// pairedComplete checks that paired holds, for every comparison a run
+// makes (PairJobs), its AUC record: a list emptied or cut by hand would
+// otherwise be read as differences that could not be formed, and the
+// report would call every verdict undetermined.
+func (v *validator) pairedComplete(r *Results) {
+	has := map[PairJob]bool{}
+	for _, p := range r.Paired {
+		if p.Metric == "auc" {
+			has[PairJob{p.Kind, p.Model, p.Extent, p.OtherModel, p.OtherExtent}] = true
+		}
+	}
+	ids := make([]string, len(r.Extents))
+	for i, e := range r.Extents {
+		ids[i] = e.ID
+	}
+	for _, j := range PairJobs(r.Models, ids, r.Scores) {
+		if !has[j] {
+			v.fail("paired", "hold no AUC difference of model %s on extent %s minus model %s on extent %s (kind %s); a run writes one for every comparison of scored models and extents", j.Model, j.Extent, j.OtherModel, j.Other, j.Kind)
+			return
+		}
+	}
+}
+
+// kindList is the extent kinds as a message lists them.
+func kindList() string {
+	names := make([]string, len(vocab.Kinds))
+	for i, k := range vocab.Kinds {
+		names[i] = string(k)
+	}
+	return strings.Join(names, ", ")
+}
+
 // rings checks each ring step's names, AUCs and areas.
 func (v *validator) rings(gs []Ring) {
 	for i, g := range gs {
@@ -234,6 +283,26 @@ func (v *validator) curves(cs []Curve) {
 	}
 }
 
+// curvesComplete checks that there is exactly one ROC curve per scored
+// model and extent, and none of an unscored one, as a run writes them.
+func (v *validator) curvesComplete(r *Results) {
+	n := map[[2]string]int{}
+	for _, c := range r.Curves {
+		n[[2]string{c.Model, c.Extent}]++
+	}
+	for _, s := range r.Scores {
+		k := [2]string{s.Model, s.Extent}
+		switch {
+		case s.Scored && n[k] == 0:
+			v.fail("curves", "hold no ROC curve of model %s on extent %s, which is scored; a run writes one for every scored model and extent", s.Model, s.Extent)
+		case n[k] > 1:
+			v.fail("curves", "hold %d ROC curves of model %s on extent %s; a run writes one", n[k], s.Model, s.Extent)
+		case !s.Scored && n[k] > 0:
+			v.fail("curves", "hold a ROC curve of model %s on extent %s, which is not scored; a run writes none there", s.Model, s.Extent)
+		}
+	}
+}
+
 // omissions checks each omitted point's model and value.
 func (v *validator) omissions(om []Omission) {
 	for i, o := range om {
@@ -242,6 +311,33 @@ func (v *validator) omissions(om []Omission) {
 			v.fail(at, "model %q is not in models", o.Model)
 		}
 		v.finite(at+".value", o.Value)
+	}
+}
+
+// omissionsComplete checks that omissions hold, for every threshold of a
+// scored model (its scores' thresholds, which do not depend on the
+// extent; fixed thresholds share one name and differ by value), the list
+// of the test points the model omits there: a list emptied or edited by
+// hand dropped the omitted points from the maps without a word.
+func (v *validator) omissionsComplete(r *Results) {
+	type key struct {
+		model, name string
+		value       float64
+	}
+	has := map[key]bool{}
+	for _, o := range r.Omissions {
+		has[key{o.Model, string(o.Threshold), o.Value}] = true
+	}
+	for _, s := range r.Scores {
+		if !s.Scored {
+			continue
+		}
+		for _, t := range s.Thresholds {
+			if !has[key{s.Model, string(t.Name), t.Value}] {
+				v.fail("omissions", "hold no list of the test points model %s omits at the threshold %s (value %v, as its scores give it); a run writes one for every threshold of a scored model", s.Model, t.Name, t.Value)
+				return
+			}
+		}
 	}
 }
 

@@ -108,6 +108,34 @@ func TestValidateRefuses(t *testing.T) {
 		// writes one entry per E of its settings on every scored extent.
 		// The maps of a grid edited to a rotation or a cell of no width
 		// were drawn without a word; a run writes north-up grids only.
+		// Accepted before, found by emptying lists of a run's
+		// results.json by hand: "paired": [] re-rendered every verdict
+		// as "undetermined (no difference could be formed)", "curves": []
+		// drew no ROC curve, "inputs": [] dropped the provenance table,
+		// "omissions": [] the omitted test points from the maps,
+		// and an unknown model role or extent kind was printed as it
+		// stood (a role other than null read as a model). A run writes
+		// an AUC difference for every comparison of scored models and
+		// extents (PairJobs), one curve per scored model and extent, the
+		// inputs it read, and only the roles and kinds listed.
+		{"paired emptied", func(r *Results) { r.Paired = nil }, "paired: hold no AUC difference of model good on extent region_b50 minus model good on extent base (kind extent)"},
+		{"a paired AUC record removed", func(r *Results) {
+			for i, p := range r.Paired {
+				if p.Metric == "auc" && p.Kind == PairedKindModel {
+					r.Paired = append(r.Paired[:i], r.Paired[i+1:]...)
+					return
+				}
+			}
+		}, "(kind model)"},
+		{"curves emptied", func(r *Results) { r.Curves = nil }, "curves: hold no ROC curve of model good on extent base, which is scored"},
+		{"a curve twice", func(r *Results) { r.Curves = append(r.Curves, r.Curves[0]) }, "curves: hold 2 ROC curves of model"},
+		{"inputs emptied", func(r *Results) { r.Inputs = nil }, "inputs: the list is empty"},
+		{"omissions emptied", func(r *Results) { r.Omissions = nil }, "omissions: hold no list of the test points model good omits at the threshold minimum_training_presence"},
+		{"an omission's threshold value changed", func(r *Results) { r.Omissions[0].Value += 0.125 }, "omissions: hold no list of the test points model good omits at the threshold minimum_training_presence (value "},
+		{"model role unknown", func(r *Results) { r.Models[0].Role = "banana" }, `models[0] (good).role: "banana" is not model or null`},
+		{"null kind on a model", func(r *Results) { r.Models[0].NullKind = NullRaster }, `models[0] (good).null_kind: "raster" is set on a model`},
+		{"null of unknown kind", func(r *Results) { r.Models[2].Role, r.Models[2].NullKind = RoleNull, "guess" }, `models[2] (broad).null_kind: "guess" is not distance_to_training or raster`},
+		{"extent kind unknown", func(r *Results) { r.Extents[1].Kind = "banana" }, `extents[1] (region_b50).kind: "banana" is not an extent kind (base, region_buffer,`},
 		{"rotated grid", func(r *Results) { r.Grid.GeoTransform[2] = 0.5 }, "grid.geotransform: ["},
 		{"cell of no width", func(r *Results) { r.Grid.GeoTransform[1] = 0 }, "is not a north-up grid"},
 		{"south-up grid", func(r *Results) { r.Grid.GeoTransform[5] = -r.Grid.GeoTransform[5] }, "is not a north-up grid"},
@@ -268,5 +296,35 @@ func TestExtremeValuesRender(t *testing.T) {
 		}
 	case <-time.After(2 * time.Minute):
 		t.Fatal("the figures took over 2 minutes: a loop without end")
+	}
+}
+
+// TestValidateTwoFixedThresholds: fixed thresholds share the name "fixed"
+// and differ by value; a run with --thresholds 0.5,0.7 writes an omission
+// list for each, and the check that every threshold has its list
+// (omissionsComplete) must tell them apart by value, not refuse the file.
+func TestValidateTwoFixedThresholds(t *testing.T) {
+	r := loadSample(t)
+	r.Settings.FixedThresholds = append(r.Settings.FixedThresholds, 0.7)
+	for i := range r.Scores {
+		s := &r.Scores[i]
+		for _, th := range s.Thresholds {
+			if th.Name == "fixed" {
+				th.Value = 0.7
+				s.Thresholds = append(s.Thresholds, th)
+				break
+			}
+		}
+	}
+	for _, m := range r.Models {
+		r.Omissions = append(r.Omissions, Omission{Model: m.Name, Threshold: "fixed", Value: 0.7, Omitted: []int{}})
+	}
+	if err := Validate(r); err != nil {
+		t.Fatal(err)
+	}
+	// Without the list at 0.7 of one model, it is refused.
+	r.Omissions = r.Omissions[:len(r.Omissions)-1]
+	if err := Validate(r); err == nil || !strings.Contains(err.Error(), "omits at the threshold fixed (value 0.7") {
+		t.Errorf("Validate = %v, want the list at 0.7 missing", err)
 	}
 }

@@ -240,7 +240,7 @@ func TestMethodsText(t *testing.T) {
 		r.Software.Name + " " + r.Software.Version,
 		"E = 0.05 and 0.1", "published bootstrap of " + strconv.Itoa(r.Settings.Iterations) + " resamples", "50% of the test records",
 		"seed " + strconv.FormatUint(r.Seed, 10),
-		"base (study region polygon; " + fmtArea(r.Extents[0].AreaKm2) + " km²)",
+		"base (the base extent, the study region as given: study region polygon; " + fmtArea(r.Extents[0].AreaKm2) + " km²)",
 		"AUC of good ranged " + f3(auc.Min) + "–" + f3(auc.Max),
 		"evaluation aids", "evaluation extents",
 		"Hanley & McNeil 1982", "Anderson et al. 2003", "DeLong et al. (1988)", "Hirzel et al. 2006", "Peterson et al. 2008",

@@ -75,6 +75,12 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 					return fault.BadInput(err)
 				}
 			}
+			if c.Flags().Changed("shard") && opts.Shard == 0 {
+				// 0 is also "not given": it would run every shard of
+				// the study and merge them, in each task of an array
+				// counted from 0 at once.
+				return fault.BadInput(errors.New("--shard 0: shards are counted from 1 (1 <= I <= --shards); a scheduler array counted from 0 needs its task number plus 1"))
+			}
 			if c.Flags().Changed("memory") {
 				m, err := batch.ParseBytes(memory)
 				if err != nil {
@@ -93,6 +99,7 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 			if runF != nil {
 				return runF(opts)
 			}
+			opts.Build = buildID() // hashed only when a batch runs
 			return batchRun(context.Background(), opts)
 		},
 	}

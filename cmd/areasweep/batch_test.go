@@ -423,3 +423,26 @@ func TestBatchShards(t *testing.T) {
 		t.Errorf("second run: exit %d\n%s", code, se)
 	}
 }
+
+// TestBatchShardCountChanged: a study split into 2 shards, one of which
+// finished, then run with --shards 3, is run in 3 shards and merged. Before,
+// the shard folder kept the partial file of the split into 2, the merge was
+// given the folders, and refused them as a mix of splits (exit 1) on every
+// rerun, advising to give files the user does not name.
+func TestBatchShardCountChanged(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(t.TempDir(), "runs")
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--shards", "2", "--only", "beta", "--shard", "1"); code != 0 {
+		t.Fatalf("shard 1/2: exit %d: %s", code, se)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--shards", "3", "--only", "beta"); code != 0 {
+		t.Fatalf("--shards 3: exit %d, want 0: %s", code, se)
+	}
+	plain := plainRun(t, s, "11", "m="+s.model)
+	want, _ := os.ReadFile(filepath.Join(plain, "results.json"))
+	got, err := os.ReadFile(filepath.Join(out, "beta", "results.json"))
+	if err != nil || len(want) == 0 || !bytes.Equal(got, want) {
+		t.Errorf("beta/results.json from 3 shards differs from a plain run (%v)", err)
+	}
+}

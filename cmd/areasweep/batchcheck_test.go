@@ -200,3 +200,42 @@ func TestTwoBatchesOnOneFolder(t *testing.T) {
 		}
 	}
 }
+
+// TestSlurmSubmitFailureSaysWhatToDo: an sbatch that refuses the job
+// (a bad partition, a cluster it cannot reach) is named with its message
+// and what to do, exit 1. When the array went in and the merge job did
+// not, the message names the array job and gives the merge job's sbatch
+// command: before, it said only "submission failed", and running the
+// command again, the natural next step, submitted the unfinished tasks a
+// second time beside the running ones.
+func TestSlurmSubmitFailureSaysWhatToDo(t *testing.T) {
+	s := sharedStudy(t)
+	table := batchTable(t, s)
+	for _, c := range []struct {
+		name, script string
+		want         []string
+	}{
+		{"merge job refused", `case "$*" in *--array=*) echo 4242 ;; *) echo "sbatch: error: invalid partition" >&2; exit 1 ;; esac`,
+			[]string{"sbatch: error: invalid partition", "the array job 4242 was submitted (tasks 1-3) but not the merge job", "do not run this command again while it runs", "sbatch --dependency=afterany:4242 ", "merge.sh"}},
+		{"array refused", `echo "sbatch: error: invalid partition" >&2; exit 1`,
+			[]string{"sbatch: error: invalid partition", "nothing was submitted (the job files are written): fix what sbatch says, then run this command again"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			bin := t.TempDir()
+			if err := os.WriteFile(filepath.Join(bin, "sbatch"), []byte("#!/bin/sh\n"+c.script+"\n"), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			env := []string{"PATH=" + bin + ":/usr/bin:/bin", "HOME=" + t.TempDir()}
+			out := filepath.Join(t.TempDir(), "runs")
+			_, se, code := runBinEnv(t, env, "batch", table, "--out", out, "--slurm", "--submit")
+			if code != 1 {
+				t.Fatalf("exit %d, want 1: %s", code, se)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(se, w) {
+					t.Errorf("message lacks %q: %s", w, se)
+				}
+			}
+		})
+	}
+}

@@ -5,6 +5,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"areasweep/cmd/internal/fault"
 )
 
 // h27Table writes a study table in its own folder (the shared inputs named
@@ -138,6 +140,33 @@ func TestBatchOnlyEmpty(t *testing.T) {
 	cmd.SetArgs([]string{"t.csv", "--out", "o", "--only", "a, b"})
 	if err := cmd.Execute(); err != nil || strings.Join(got, "|") != "a|b" {
 		t.Errorf(`--only "a, b": %q, %v; want a and b`, got, err)
+	}
+}
+
+// TestBatchShardZero: --shard 0 (a scheduler's task number counted from
+// 0) is refused, exit 2. Before, 0 read as "--shard not given": the task
+// ran every shard of the study and merged them, while the tasks 1 to N-1
+// of the same array ran shards of it into the same folders.
+func TestBatchShardZero(t *testing.T) {
+	for _, c := range []struct {
+		shard   string
+		wantRun bool
+		want    string
+	}{
+		{"0", false, "--shard 0: shards are counted from 1"},
+		{"1", true, ""},
+	} {
+		ran := false
+		cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
+		cmd.SetArgs([]string{"t.csv", "--out", "o", "--only", "a", "--shards", "2", "--shard", c.shard})
+		cmd.SilenceErrors, cmd.SilenceUsage = true, true
+		err := cmd.Execute()
+		if ran != c.wantRun || (c.want == "") != (err == nil) || (err != nil && !strings.Contains(err.Error(), c.want)) {
+			t.Errorf("--shard %s: ran %v, error %v; want ran %v and %q", c.shard, ran, err, c.wantRun, c.want)
+		}
+		if err != nil && !fault.IsBadInput(err) {
+			t.Errorf("--shard %s: %v is not a bad input (exit 2)", c.shard, err)
+		}
 	}
 }
 

@@ -71,7 +71,7 @@ func mergeRun(o *MergeOptions) error {
 	log := &pipeline.Log{}
 	setRunLog(log)
 	defer setRunLog(nil)
-	mo := pipeline.MergeOptions{Files: o.Files, Out: o.Out, Force: o.Force, Quiet: o.Quiet, Workers: o.Workers, Version: version}
+	mo := pipeline.MergeOptions{Files: o.Files, Out: o.Out, Force: o.Force, Quiet: o.Quiet, Workers: o.Workers, Version: version, Build: buildID()}
 	if _, err := pipeline.Merge(context.Background(), mo, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log}); err != nil {
 		return err
 	}

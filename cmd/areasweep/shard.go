@@ -54,7 +54,7 @@ func shardSweep(o *RunOptions) error {
 	setRunLog(log)
 	defer setRunLog(nil)
 	po := o.Options
-	po.StudyFile, po.Version = o.Study, version
+	po.StudyFile, po.Version, po.Build = o.Study, version, buildID()
 	if err := pipeline.RunShard(context.Background(), po, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log}, o.Shard.I, o.Shard.N); err != nil {
 		return err
 	}

@@ -35,6 +35,9 @@ const (
 	KindUser Kind = "user"
 )
 
+// Kinds lists every extent kind, in the order of the list above.
+var Kinds = []Kind{KindBase, KindRegionBuffer, KindPointBuffer, KindHull, KindEcoregions, KindWholeRaster, KindUser}
+
 // Fixed member ids: the base region and the whole raster, whatever the
 // settings.
 const (

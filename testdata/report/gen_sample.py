@@ -161,7 +161,7 @@ hull = Delaunay(np.column_stack([tlon, tlat])).find_simplex(
     np.column_stack([LON.ravel(), LAT.ravel()])).reshape(H, W) >= 0
 
 ext_defs = [
-    ("base", "region", "study region polygon", region, "region"),
+    ("base", "base", "study region polygon", region, "region"),
     ("region_b50", "region_buffer", "study region + 50 km", dist_region <= 50, "region"),
     ("region_b100", "region_buffer", "study region + 100 km", dist_region <= 100, "region"),
     ("region_b200", "region_buffer", "study region + 200 km", dist_region <= 200, "region"),
@@ -170,7 +170,7 @@ ext_defs = [
     ("hull", "hull", "convex hull of training points, buffer 0 km", hull, ""),
     ("ecoregions_min5", "ecoregions", "ecoregions with >= 5 points (field ECO_NAME)",
      np.zeros((H, W), bool), ""),
-    ("whole", "raster", "whole raster", np.ones((H, W), bool), ""),
+    ("whole", "whole_raster", "whole raster", np.ones((H, W), bool), ""),
     ("points_b400", "point_buffer", "400 km around training points", dist_train <= 400, ""),
 ]
 n_valid = int(valid_any.sum())

@@ -33,6 +33,8 @@ type Options struct {
 	Slurm SlurmOptions
 	// Version is recorded in each study's results (pipeline.Options).
 	Version string
+	// Build names this areasweep's build (pipeline.Options.Build).
+	Build string
 }
 
 // SlurmOptions turn a batch into a SLURM job array plus a merge job.

@@ -11,6 +11,7 @@ import (
 
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/settings"
 	"areasweep/report"
@@ -92,6 +93,9 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	po := rowOptions(row.Study, filepath.Join(out, row.ID))
 	if errs := rowProblems(row.Study, po.Out, bad); len(errs) > 0 {
 		return nil, errs
+	}
+	if col, err := inputInOut(&po, out); err != nil {
+		return nil, inputs.BatchErrors{bad(col, err)}
 	}
 	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
 	if col, err := missingInput(&po); err != nil {
@@ -245,23 +249,56 @@ func missingInput(o *pipeline.Options) (string, error) {
 		}
 		return nil
 	}
+	for _, in := range inputColumns(o) {
+		if err := check(in.col, in.path); err != nil {
+			return in.col, err
+		}
+	}
+	return "", nil
+}
+
+// columnPath is an input file of a study and the table column naming it.
+type columnPath struct{ col, path string }
+
+// inputColumns lists the input files of o, each with its column: models,
+// nulls and extra layers, then occurrences, region and ecoregions.
+func inputColumns(o *pipeline.Options) []columnPath {
+	var out []columnPath
 	for _, l := range []struct {
 		col   string
 		items []string
 	}{{"model", o.Models}, {"null", o.Nulls}, {"extra", o.Extra}} {
 		for _, m := range l.items {
 			_, path, _ := inputs.ParseNamedPath(m)
-			if err := check(l.col, path); err != nil {
-				return l.col, err
-			}
+			out = append(out, columnPath{l.col, path})
 		}
 	}
-	for _, p := range []struct{ col, path string }{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+	for _, p := range []columnPath{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
 		if p.path != "" {
-			if err := check(p.col, p.path); err != nil {
-				return p.col, err
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// inputInOut refuses an input file of o that lies inside the batch's
+// --out folder out: in a study's folder (another study's outputs, which
+// may not be written yet when this study starts, and which that study's
+// rerun replaces), in the batch's own folder, or beside the summary. The
+// study's numbers would depend on the order the studies run in; the
+// message names the column and says to copy the file out.
+func inputInOut(o *pipeline.Options, out string) (string, error) {
+	for _, in := range inputColumns(o) {
+		if in.path == "" || !outdir.Inside(in.path, out) {
+			continue
+		}
+		where := out
+		if rel, err := filepath.Rel(outdir.RealPath(out), outdir.RealPath(in.path)); err == nil {
+			if first, _, nested := strings.Cut(filepath.ToSlash(rel), "/"); nested {
+				where = filepath.Join(out, first) // a study's folder, or the batch's own
 			}
 		}
+		return in.col, fmt.Errorf("%s lies in %s, which this batch writes (--out %s): a study's input cannot be what the batch writes, since another study's outputs may not exist yet when it starts and a rerun replaces them; copy the file to a folder outside %s and name the copy", in.path, where, out, out)
 	}
 	return "", nil
 }

@@ -70,3 +70,52 @@ func tableProblems(t *testing.T, name, body string) ([]string, error) {
 	}
 	return got, err
 }
+
+// TestInputInsideOutRefused: a row whose input lies in the batch's --out
+// (another study's outputs, the batch's own folder, a file beside the
+// summary, or any of them through a symbolic link to --out) is refused
+// before anything runs, with its column. Before, such a study failed as
+// "does not exist" when it ran before the study writing the file, and ran
+// on a second try: its numbers depended on the order the studies ran in,
+// and a rerun of the other study replaced its input.
+func TestInputInsideOutRefused(t *testing.T) {
+	s := newSmallStudy(t)
+	out := filepath.Join(s.Dir, "runs")
+	if err := os.MkdirAll(filepath.Join(out, "alpha"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink(out, filepath.Join(s.Dir, "link")); err != nil {
+		t.Fatal(err)
+	}
+	table := filepath.Join(s.Dir, "inside.csv")
+	body := "# iterations: 30\nid,model,occurrences,region,extra\n" +
+		"alpha,m=model.tif,occ.csv,region.geojson,\n" +
+		"other,m=model.tif,occ.csv,runs/alpha/extents.gpkg,\n" +
+		"own,m=runs/.areasweep-batch/m.tif,occ.csv,region.geojson,\n" +
+		"beside,m=model.tif,runs/occ.csv,region.geojson,\n" +
+		"linked,m=model.tif,occ.csv,region.geojson,x=link/alpha/extents.gpkg\n" +
+		"near,m=model.tif,occ.csv,region.geojson,x=runs2/a.gpkg\n"
+	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
+		t.Fatal(err)
+	}
+	_, err := resolve(&Options{Table: table, Out: out})
+	var errs inputs.BatchErrors
+	if !errors.As(err, &errs) {
+		t.Fatalf("resolve: %v, want the table's problems", err)
+	}
+	var got []string
+	for _, e := range errs {
+		got = append(got, e.Study+"/"+e.Column)
+	}
+	if want := "other/region own/model beside/occurrences linked/extra"; strings.Join(got, " ") != want {
+		t.Errorf("problems %v, want %s\n%v", got, want, err)
+	}
+	for _, want := range []string{
+		`line 4, study "other", column "region": ` + filepath.Join(out, "alpha", "extents.gpkg") + " lies in " + filepath.Join(out, "alpha") + ", which this batch writes",
+		"copy the file to a folder outside " + out,
+	} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message lacks %q:\n%v", want, err)
+		}
+	}
+}

@@ -153,7 +153,7 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 	}
 	sub, err := (slurm.Submitter{}).Submit(ctx, p, files, pending)
 	if err != nil {
-		return err
+		return submitFailed(err, sub, files)
 	}
 	if sub.ArrayJob != "" {
 		fmt.Fprintf(w, "submitted array job %s (tasks %s)\n", sub.ArrayJob, slurm.ArraySpec(sub.Tasks, 0))
@@ -166,6 +166,19 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		return err
 	}
 	return waited(o, w, studies, files.Logs, staleIDs, unreadableIDs)
+}
+
+// submitFailed says what a failed submission left and what to do. When
+// the array job went in and the merge job did not, running the command
+// again would submit the unfinished tasks a second time beside the
+// running ones: the message names the array job and gives the merge job's
+// sbatch command instead.
+func submitFailed(err error, sub slurm.Submission, files slurm.Files) error {
+	if sub.ArrayJob == "" {
+		return fmt.Errorf("%w; nothing was submitted (the job files are written): fix what sbatch says, then run this command again", err)
+	}
+	return fmt.Errorf("%w; the array job %s was submitted (tasks %s) but not the merge job: do not run this command again while it runs (it would submit the unfinished tasks again); fix what sbatch says, then submit the merge job by hand: sbatch --dependency=afterany:%s %s",
+		err, sub.ArrayJob, slurm.ArraySpec(sub.Tasks, 0), sub.ArrayJob, slurm.Quote(files.Merge))
 }
 
 // waited reports, once the submitted jobs left the queue, the studies that
@@ -257,7 +270,7 @@ func slurmPending(o *Options, p *slurm.Plan, studies []*study) (pending []int, s
 		if t.Shards > 1 {
 			// A shard's folder is the batch's own: one made from other
 			// settings runs again, as in a local batch.
-			switch ss, _, _ := shardState(o.Out, st, t.Shard, t.Shards); ss {
+			switch ss, _, _ := shardState(o, st, t.Shard, t.Shards); ss {
 			case stateDone:
 				continue
 			case stateStale:

@@ -154,22 +154,28 @@ func markerInputs(files []pipeline.InputFile) []batch.InputFile {
 // shard's folder is the batch's own: a stale shard runs again without
 // --force. A shard whose marker says done but whose partial file is
 // missing or damaged (removed, cut short or changed since) is stale too:
-// the merge would refuse it on every re-run.
-func shardState(out string, st *study, k, n int) (studyState, staleness, error) {
-	dir := shardDir(out, st.id, k)
+// the merge would refuse it on every re-run. So is one written by another
+// areasweep build (the same executable rebuilt, or another one, since it
+// ran), which the merge refuses too.
+func shardState(o *Options, st *study, k, n int) (studyState, staleness, error) {
+	dir := shardDir(o.Out, st.id, k)
 	s, why, err := st.markerState(dir)
 	if err != nil || s != stateDone {
 		return s, why, err
 	}
 	f := filepath.Join(dir, pipeline.ShardFileName(k, n))
 	data, err := os.ReadFile(f)
+	var part *metrics.PartialFile
 	if err == nil {
-		_, err = metrics.DecodePartial(data, f)
+		part, err = metrics.DecodePartial(data, f)
 	} else if errors.Is(err, fs.ErrNotExist) {
 		err = fmt.Errorf("%s was removed", f)
 	}
 	if err != nil {
 		return stateStale, staleness{"by a run whose partial file is missing or damaged since (" + fault.UserText(err) + ")", "remove the folder"}, nil
+	}
+	if tool := pipeline.ToolID(o.Version, o.Build); part.Header.Tool != tool {
+		return stateStale, staleness{fmt.Sprintf("by areasweep %s, and this is %s", part.Header.Tool, tool), "remove the folder"}, nil
 	}
 	return stateDone, staleness{}, nil
 }

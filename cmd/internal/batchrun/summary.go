@@ -72,6 +72,9 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 		// writing the summary, which ran them (or was to).
 		s.Software = report.Software{Name: "areasweep", Version: o.Version}
 	}
+	if err := summaryInTheWay(o.Out); err != nil {
+		return err
+	}
 	if err := writeSummaryFiles(o.Out, s); err != nil {
 		// The summary's files are each replaced whole; the studies'
 		// folders are not touched.
@@ -82,6 +85,29 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 			what += outdir.FileSizeAdvice(err)
 		}
 		return fmt.Errorf("writing the summary into %s failed: %s; finished studies keep their folders, and running the same command again skips them and writes it", o.Out, what)
+	}
+	return nil
+}
+
+// summaryInTheWay refuses, before any summary file is written, a folder
+// where the summary writes a file (summary.csv/ of the user's) or a file
+// where it writes its folder of figures: the move onto it failed with
+// "file exists", and running the command again, as the message advised,
+// failed the same way.
+func summaryInTheWay(out string) error {
+	for _, n := range report.SummaryNames() {
+		st, err := os.Lstat(filepath.Join(out, n))
+		if err != nil {
+			continue
+		}
+		folder := n == report.SummaryFigures
+		if st.IsDir() != folder {
+			what, writes := "a folder", "a file"
+			if folder {
+				what, writes = "a file", "a folder"
+			}
+			return fmt.Errorf("writing the summary into %s: %s is %s, and the summary writes %s of that name; move or rename it, then run the same command again (finished studies keep their folders and are skipped)", out, filepath.Join(out, n), what, writes)
+		}
 	}
 	return nil
 }

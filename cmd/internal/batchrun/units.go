@@ -103,7 +103,7 @@ func runShards(ctx context.Context, o *Options, studies []*study, todo []int, er
 			if o.SummaryOnly || (o.Shard > 0 && k != o.Shard) {
 				continue
 			}
-			switch s, _, err := shardState(o.Out, st, k, o.Shards); {
+			switch s, _, err := shardState(o, st, k, o.Shards); {
 			case err != nil:
 				errs[i] = err
 			case s == stateDone:
@@ -127,7 +127,7 @@ func mergeShards(ctx context.Context, o *Options, studies []*study, todo []int, 
 		var missing []int
 		var stale error
 		for k := 1; k <= o.Shards; k++ {
-			s, why, _ := shardState(o.Out, studies[i], k, o.Shards)
+			s, why, _ := shardState(o, studies[i], k, o.Shards)
 			if s != stateDone {
 				missing = append(missing, k)
 			}
@@ -221,7 +221,7 @@ func runUnits(ctx context.Context, o *Options, studies []*study, units []unit, e
 // shard, whose warnings its merge gives).
 func runUnit(ctx context.Context, o *Options, st *study, u unit) (int, error) {
 	po := st.opts
-	po.Quiet, po.Version = true, o.Version
+	po.Quiet, po.Version, po.Build = true, o.Version, o.Build
 	var read []pipeline.InputFile
 	var m batch.Marker
 	pio := pipeline.IO{ErrOut: io.Discard, Log: &pipeline.Log{}, Inputs: func(f []pipeline.InputFile) { read = f },
@@ -248,11 +248,15 @@ func runUnit(ctx context.Context, o *Options, st *study, u unit) (int, error) {
 	}
 	m = batch.Marker{"study": st.id, "settings": st.settings, markerValues: string(st.canonical)}
 	if u.merge {
+		// The partial files by name, not their folders: a folder keeps
+		// the file of an earlier split (--shards changed between two
+		// runs), which the merge would refuse as a mix of splits on
+		// every rerun.
 		files := make([]string, o.Shards)
 		for k := range files {
-			files[k] = shardDir(o.Out, st.id, k+1)
+			files[k] = filepath.Join(shardDir(o.Out, st.id, k+1), pipeline.ShardFileName(k+1, o.Shards))
 		}
-		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: o.Version}
+		mo := pipeline.MergeOptions{Files: files, Out: st.dir, Force: po.Force, Quiet: true, Workers: po.Workers, Version: o.Version, Build: o.Build}
 		return warnings(pipeline.Merge(ctx, mo, pio))
 	}
 	return warnings(pipeline.Run(ctx, po, pio))

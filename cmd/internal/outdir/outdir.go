@@ -194,6 +194,28 @@ func (d *Dir) foreign(names []string, staged string) []string {
 	return found
 }
 
+// folderAtFile returns the first of names (entries of --out) where
+// areasweep writes a file but a folder stands (not a link to one), as a
+// path under --out, or "". --force replaces the entry, so the folder and
+// everything in it would be deleted: a folder results.json/ of the user's
+// went without a word.
+func (d *Dir) folderAtFile(names []string) string {
+	for _, n := range names {
+		if n == "figures" || (n == "inputs" && d.Demo) {
+			continue // areasweep's folders: see foreign
+		}
+		if st, err := os.Lstat(filepath.Join(d.abs, n)); err == nil && st.IsDir() {
+			return filepath.Join(d.Out, n)
+		}
+	}
+	return ""
+}
+
+// folderAtFileError is the refusal of a folder found by folderAtFile.
+func folderAtFileError(out, folder string) error {
+	return fmt.Errorf("--out %s holds the folder %s where areasweep writes a file of that name, which --force replaces (the folder with everything in it); move or rename the folder, or choose another --out", out, folder)
+}
+
 // NotEmptyError is the refusal of an --out that exists and holds files
 // without --force: only --force gets past it (a batch says so for the
 // studies it stops).
@@ -331,6 +353,9 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs []stri
 		}
 		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
 			return nil, false, fault.BadInput(foreignError(out, found))
+		}
+		if f := d.folderAtFile(outputNames); f != "" && !shard {
+			return nil, false, fault.BadInput(folderAtFileError(out, f))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
 		if errors.Is(err, syscall.ENOTDIR) {
@@ -570,6 +595,22 @@ func realPath(abs string) string {
 		rest = filepath.Join(filepath.Base(p), rest)
 		p = parent
 	}
+}
+
+// RealPath is path made absolute, with the symbolic links of its longest
+// existing prefix resolved.
+func RealPath(path string) string {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return path
+	}
+	return realPath(abs)
+}
+
+// Inside reports whether path is the folder dir or lies inside it, both
+// taken with their symbolic links resolved (a link to dir names dir).
+func Inside(path, dir string) bool {
+	return within(RealPath(path), RealPath(dir))
 }
 
 // within reports whether path is dir or lies inside it.
@@ -1037,14 +1078,22 @@ func (d *Dir) moveEntries() error {
 		}
 	}
 	// A file of the user's that reached a folder replaced as a whole
-	// during the run: nothing is replaced, as for a clash.
+	// during the run, or a folder of the user's where a file goes (a
+	// shard's own files are checked only here): nothing is replaced, as
+	// for a clash.
+	var inWay error
 	if found := d.foreign(replace, d.Stage); len(found) > 0 {
+		inWay = foreignError(d.Out, found)
+	} else if f := d.folderAtFile(replace); f != "" {
+		inWay = folderAtFileError(d.Out, f)
+	}
+	if inWay != nil {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())
 		os.Remove(filepath.Join(d.Stage, OwnerName)) // a visible folder of results, the user's now
 		if err := os.Rename(d.Stage, keep); err != nil {
 			keep = d.Stage
 		}
-		return fmt.Errorf("%s, so nothing in it was replaced; the results are in %s", foreignError(d.Out, found), keep)
+		return fmt.Errorf("%s, so nothing in it was replaced; the results are in %s", inWay, keep)
 	}
 	hold, err := os.MkdirTemp(d.abs, holdPrefix)
 	if err == nil {

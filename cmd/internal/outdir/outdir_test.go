@@ -138,6 +138,9 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 		{"sub-folder of figures", "figures/drafts/a.svg", false},
 		{"notes in the demo's inputs", "inputs/notes.txt", true},
 		{"a file named figures", "figures", false},
+		// A folder where a file goes was deleted with everything in it.
+		{"a folder named scores.csv", "scores.csv/keep.txt", false},
+		{"a folder named results.json", "results.json/a/b.txt", false},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -172,6 +175,24 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 			t.Fatal(err)
 		}
 		kept(t, filepath.Join(out, "figures", "my_figure.png"))
+	})
+	t.Run("a shard keeps a folder named as its partial file", func(t *testing.T) {
+		out := filepath.Join(t.TempDir(), "res")
+		mine(t, filepath.Join(out, "shard-1-of-2.aspf", "keep.txt"))
+		d, err := OpenShard(out, true, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(filepath.Join(d.Stage, "shard-1-of-2.aspf"), []byte("x"), 0o644)
+		err = d.Finish()
+		if err == nil || fault.IsBadInput(err) || !strings.Contains(err.Error(), "holds the folder "+filepath.Join(out, "shard-1-of-2.aspf")) {
+			t.Fatalf("Finish = %v, want a failure naming the folder", err)
+		}
+		kept(t, filepath.Join(out, "shard-1-of-2.aspf", "keep.txt"))
+		keep := out + ".results-" + strconv.Itoa(os.Getpid())
+		if b, _ := os.ReadFile(filepath.Join(keep, "shard-1-of-2.aspf")); string(b) != "x" {
+			t.Errorf("results not kept in %s", keep)
+		}
 	})
 	t.Run("areasweep's own names pass", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")

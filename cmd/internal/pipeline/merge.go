@@ -35,8 +35,21 @@ type MergeOptions struct {
 	Force   bool
 	Quiet   bool
 	Workers int
-	// Version is this areasweep's version; shards of another are refused.
+	// Version is this areasweep's version and Build its build; shards of
+	// another version or build are refused.
 	Version string
+	Build   string
+}
+
+// ToolID is what a partial file records as the areasweep that wrote it:
+// the version, with the build when it is known. Two builds of one
+// version number (two commits of a development version, say) can sum
+// the grid differently, so their shards must not be merged.
+func ToolID(version, build string) string {
+	if build == "" {
+		return version
+	}
+	return version + " (" + build + ")"
 }
 
 // Merge combines the partial files of every shard of one run into that
@@ -64,7 +77,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if err := outdir.Check(mo.Out, mo.Force, files, false); err != nil {
 		return nil, err
 	}
-	merged, first, err := readShards(files, mo.Version)
+	merged, first, err := readShards(files, ToolID(mo.Version, mo.Build))
 	if err != nil {
 		return nil, err
 	}
@@ -78,7 +91,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	if rec.settingsHash() != first.Settings {
 		return nil, fault.BadInput(fmt.Errorf("%s: the recorded settings do not match the header's settings hash; the file was altered: run its shard again", first.Source))
 	}
-	o := Options{Values: settings.Values{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers}, Version: mo.Version,
+	o := Options{Values: settings.Values{Out: mo.Out, Force: mo.Force, Quiet: mo.Quiet, Workers: mo.Workers}, Version: mo.Version, Build: mo.Build,
 		ExpectInputs: first.Inputs, MoreInputs: files}
 	rec.apply(&o)
 	// The shards record the input paths as they were given: a relative
@@ -292,7 +305,7 @@ func readShards(files []string, version string) (*shardfile.Merged, metrics.Shar
 		return nil, metrics.ShardHeader{}, fault.BadInput(err)
 	}
 	if h := headers[0]; h.Tool != version {
-		return nil, metrics.ShardHeader{}, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the version that wrote them (or run the shards again)", h.Source, h.Tool, version))
+		return nil, metrics.ShardHeader{}, fault.BadInput(fmt.Errorf("%s: the shards were written by areasweep %s, this is %s; merge them with the areasweep that wrote them (or run the shards again with this one)", h.Source, h.Tool, version))
 	}
 	// Shard 1's recorded run is the one used: shards may differ in paths
 	// (other folders or machines) but not in inputs or settings.

@@ -32,6 +32,10 @@ type Options struct {
 	StudyFile string
 	// Version is the software version recorded in results.json.
 	Version string
+	// Build names this areasweep's build (its source revision and Go
+	// version, see cmd/areasweep's buildID); a shard records it beside
+	// Version, and a merge refuses the shards of another build.
+	Build string
 	// ExpectInputs, when set, are the inputs' checksums the run must find
 	// (role and SHA-256, in the order of results.json's inputs): a merge
 	// refuses inputs that changed since its shards ran.

@@ -59,7 +59,7 @@ func (s *Study) paired() error {
 			defer wg.Done()
 			for i := range next {
 				j := jobs[i]
-				out[i], errs[i] = s.comparePair(j.kind, j.ma, j.ea, j.mb, j.eb)
+				out[i], errs[i] = s.comparePair(j.Kind, j.Model, j.Extent, j.OtherModel, j.Other)
 			}
 		}()
 	}
@@ -77,96 +77,14 @@ func (s *Study) paired() error {
 	return nil
 }
 
-// pairJob is one paired comparison: model ma on extent ea minus model mb
-// on extent eb.
-type pairJob struct {
-	kind           report.PairKind
-	ma, ea, mb, eb string
-}
-
-// pairJobs lists the comparisons in the order results.json keeps them:
-// every model and null on every other extent minus itself on the base
-// extent, then on each extent every pair of models, then every model
-// minus every null; each only where both sides are scored.
-func (s *Study) pairJobs() []pairJob {
-	var ids []string
-	for _, m := range s.fam.Members {
-		ids = append(ids, m.ID)
+// pairJobs lists the comparisons in the order results.json keeps them
+// (report.PairJobs, on the family's extents in family order).
+func (s *Study) pairJobs() []report.PairJob {
+	ids := make([]string, len(s.fam.Members))
+	for i, m := range s.fam.Members {
+		ids[i] = m.ID
 	}
-	scored := func(model, ext string) *report.Score {
-		for i := range s.res.Scores {
-			sc := &s.res.Scores[i]
-			if sc.Model == model && sc.Extent == ext && sc.Scored {
-				return sc
-			}
-		}
-		return nil
-	}
-	all := s.res.Models
-	var models, nullModels []report.Model
-	for _, m := range all {
-		if m.IsNull() {
-			nullModels = append(nullModels, m)
-		} else {
-			models = append(models, m)
-		}
-	}
-	// The extents something is scored on, and the reference of the
-	// differences between extents: the base extent, or the first extent
-	// some model (else some null) is scored on when no model is scored on
-	// the base. It is the report's reference (its analysis reads models
-	// only): an extent where only a null is scored (every model constant
-	// there, or without data) would otherwise be the reference here and
-	// not in the report, which then found no difference of the models to
-	// judge.
-	scoredBy := func(ms []report.Model) []string {
-		var out []string
-		for _, id := range ids {
-			for _, m := range ms {
-				if scored(m.Name, id) != nil {
-					out = append(out, id)
-					break
-				}
-			}
-		}
-		return out
-	}
-	okIDs := scoredBy(all)
-	refIDs := scoredBy(models)
-	if len(refIDs) == 0 {
-		refIDs = okIDs
-	}
-	base := report.BaseExtent(refIDs)
-	var jobs []pairJob
-	for _, m := range all {
-		if scored(m.Name, base) == nil {
-			continue
-		}
-		for _, id := range okIDs {
-			if id != base && scored(m.Name, id) != nil {
-				jobs = append(jobs, pairJob{report.PairedKindExtent, m.Name, id, m.Name, base})
-			}
-		}
-	}
-	for _, id := range okIDs {
-		for i, a := range models {
-			for _, b := range models[i+1:] {
-				if scored(a.Name, id) != nil && scored(b.Name, id) != nil {
-					jobs = append(jobs, pairJob{report.PairedKindModel, a.Name, id, b.Name, id})
-				}
-			}
-		}
-	}
-	for _, id := range okIDs {
-		for _, a := range models {
-			for _, n := range nullModels {
-				if scored(a.Name, id) != nil && scored(n.Name, id) != nil {
-					jobs = append(jobs, pairJob{report.PairedKindNull, a.Name, id, n.Name, id})
-				}
-			}
-		}
-	}
-	return jobs
+	return report.PairJobs(s.res.Models, ids, s.res.Scores)
 }
 
 // comparePair compares model ma on extent ea with model mb on extent eb on

@@ -139,7 +139,7 @@ func settingsDiff(a, b []byte) string {
 // shardHeader is the partial-file header of shard i of n of the prepared
 // study s.
 func (s *Study) shardHeader(i, n int, blocks []metrics.BlockRange) metrics.ShardHeader {
-	h := metrics.ShardHeader{Tool: s.o.Version, Settings: recordRun(s.o).settingsHash(), Seed: s.o.Seed,
+	h := metrics.ShardHeader{Tool: ToolID(s.o.Version, s.o.Build), Settings: recordRun(s.o).settingsHash(), Seed: s.o.Seed,
 		Shard: i, Shards: n, TotalBlocks: s.grid.Height, Blocks: blocks}
 	for _, in := range s.res.Inputs {
 		h.Inputs = append(h.Inputs, metrics.InputChecksum{Name: in.Role, SHA256: in.SHA256, Sidecars: sidecarsDigest(in)})

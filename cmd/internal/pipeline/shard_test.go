@@ -27,6 +27,7 @@ var notRecorded = map[string]string{
 	"InputsDir":    "the demo's generated inputs; the demo does not shard",
 	"StudyFile":    "its settings are already resolved into the options",
 	"Version":      "compared on its own (ShardHeader.Tool)",
+	"Build":        "compared on its own (ShardHeader.Tool)",
 	"ExpectInputs": "set by the merge from the shards' headers",
 	"MoreInputs":   "set by the merge (the partial files)",
 	"Shard":        "set by RunShard for the shard's own output folder; a merge is no shard",
