@@ -186,7 +186,10 @@ func (a *analysis) independence() Independence {
 		ind.CellWidthApprox = true
 		how = ", approximate for a geographic grid"
 	} else {
-		ind.CellWidthKm = math.Abs(g.GeoTransform[1]) / 1000
+		ind.CellWidthKm, ind.CellWidthApprox = projectedCellWidthKm(g, a.r.Extents)
+		if ind.CellWidthApprox {
+			how = ", approximate: the mean true cell size of this projected grid"
+		}
 	}
 	ind.NearKm = NearCells * ind.CellWidthKm
 	for _, v := range d {
@@ -221,6 +224,38 @@ func (a *analysis) independence() Independence {
 		ind.Sentence += fmt.Sprintf(", below our %s warning level.", pct(NearShareWarn))
 	}
 	return ind
+}
+
+// projectedCellWidthKm returns a projected grid's cell width on the
+// ground in km, and whether it is approximate. The geotransform gives the
+// width in the CRS's unit, g.UnitM metres each (taken as 1 when not
+// recorded, as in files written before the field). On a projection that is
+// not equal-area that map width is not the width on the ground, which the
+// test-to-training distances are (a Web Mercator cell 4 km wide on the map
+// is 1.4 km wide at 70° N), so the width is scaled by the square root of the
+// grid's mean ratio of true to map cell area (the area over the cells of
+// the extent with most cells, the whole raster in a run): the side of a square of the mean true cell area, for square
+// map cells. It is approximate where that ratio differs from 1 by more than
+// 0.1% (our choice: a UTM grid within its zone stays exact), since the
+// scale then varies across the grid.
+func projectedCellWidthKm(g Grid, extents []Extent) (float64, bool) {
+	unit := g.UnitM
+	if !(unit > 0) {
+		unit = 1
+	}
+	width := math.Abs(g.GeoTransform[1]) * unit / 1000
+	mapCellKm2 := math.Abs(g.GeoTransform[1]*g.GeoTransform[5]) * unit * unit / 1e6
+	var big *Extent
+	for i := range extents {
+		if e := &extents[i]; e.Cells > 0 && e.AreaKm2 > 0 && (big == nil || e.Cells > big.Cells) {
+			big = e
+		}
+	}
+	if big == nil || !(mapCellKm2 > 0) {
+		return width, false
+	}
+	ratio := big.AreaKm2 / float64(big.Cells) / mapCellKm2
+	return width * math.Sqrt(ratio), math.Abs(ratio-1) > 1e-3
 }
 
 // omitted lists Results.Omissions with counts and shares.

@@ -508,8 +508,10 @@ type Independence struct {
 	Median  float64 `json:"median_km"`
 	Q3      float64 `json:"q3_km"`
 	Max     float64 `json:"max_km"`
-	// CellWidthKm is the cell width; CellWidthApprox marks the geographic
-	// approximation.
+	// CellWidthKm is the cell width on the ground; CellWidthApprox marks
+	// the approximations: the east-west width at the points' mean latitude
+	// on a geographic grid, the mean true cell size on a projected grid
+	// whose map scale varies (projectedCellWidthKm).
 	CellWidthKm     float64 `json:"cell_width_km"`
 	CellWidthApprox bool    `json:"cell_width_approx"`
 	NearKm          float64 `json:"near_km"`

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"math"
 	"strings"
 	"testing"
 
@@ -452,5 +453,58 @@ func TestRobustWideRangeHeadline(t *testing.T) {
 		[]string{"(wider than the tolerance: the verdict rests on each extent's paired difference from base, not on this spread) and is robust"}, nil)
 	if s := analyzed(t, loadSample(t)); strings.Contains(s.Headline, "wider than the tolerance") {
 		t.Errorf("the clause stands beside an extent-sensitive verdict: %s", s.Headline)
+	}
+}
+
+// TestIndependenceProjectedCellWidth: on a projected grid the "3 cell
+// widths" a test point counts as near a training point were the map width
+// of a cell in the CRS's unit read as metres, while the distances are
+// geodesic on the ground (an audit of areasweep's numbers on a Web Mercator
+// study at 66-76° N: "40% lie within 3 cell widths (12 km)" for cells of 4
+// km on the map, 1.2 to 1.6 km on the ground; a grid in US survey feet had
+// its width in feet read as metres). The width is now the map width in
+// metres scaled by the square root of the whole raster's mean true over
+// map cell area (that of the extent with most cells, the whole raster
+// in a run). Expected widths worked by hand from the constructed areas.
+func TestIndependenceProjectedCellWidth(t *testing.T) {
+	cos70 := math.Cos(70 * math.Pi / 180)
+	cases := []struct {
+		name        string
+		cell, unitM float64
+		areaRatio   float64 // whole raster's true over map cell area
+		want        float64 // km
+		approx      bool
+		phrase      string
+	}{
+		{"metres, true scale (UTM-like)", 4000, 1, 1, 4, false, "(12 km) of one"},
+		{"Web Mercator at 70 N", 4000, 1, cos70 * cos70, 4 * cos70, true, "approximate: the mean true cell size of this projected grid"},
+		{"US survey feet, true scale", 1000, 1200.0 / 3937, 1, 1200.0 / 3937, false, "(0.914 km) of one"},
+		{"unit not recorded (older file): metres", 2500, 0, 1, 2.5, false, "(7.5 km) of one"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			r := loadSample(t)
+			r.Grid.Geographic = false
+			r.Grid.CRS = "EPSG:3857"
+			r.Grid.GeoTransform = [6]float64{0, tc.cell, 0, 0, 0, -tc.cell}
+			r.Grid.UnitM = tc.unitM
+			unit := tc.unitM
+			if unit == 0 {
+				unit = 1
+			}
+			mapKm2 := tc.cell * tc.cell * unit * unit / 1e6
+			for i := range r.Extents {
+				e := &r.Extents[i]
+				e.AreaKm2 = float64(e.Cells) * mapKm2 * tc.areaRatio
+			}
+			ind := analyzed(t, r).Independence
+			if math.Abs(ind.CellWidthKm-tc.want) > 1e-9*tc.want || ind.CellWidthApprox != tc.approx {
+				t.Fatalf("cell width %.12g km (approximate %v), want %.12g (%v)", ind.CellWidthKm, ind.CellWidthApprox, tc.want, tc.approx)
+			}
+			if math.Abs(ind.NearKm-NearCells*tc.want) > 1e-9*tc.want {
+				t.Errorf("near %g km, want %g", ind.NearKm, NearCells*tc.want)
+			}
+			checkWords(t, "sentence", ind.Sentence, []string{tc.phrase}, []string{"geographic"})
+		})
 	}
 }
