@@ -42,14 +42,7 @@ func TestMain(m *testing.M) {
 // runBin runs the built binary and returns stdout, stderr and exit code.
 func runBin(t *testing.T, args ...string) (string, string, int) {
 	t.Helper()
-	cmd := exec.Command(areasweepBin, args...)
-	var so, se bytes.Buffer
-	cmd.Stdout, cmd.Stderr = &so, &se
-	code := exitCode(cmd.Run())
-	if code < 0 {
-		t.Fatalf("run %v: did not start or was not waited for", args)
-	}
-	return so.String(), se.String(), code
+	return runExe(t, areasweepBin, args...)
 }
 
 // exitCode is the exit code of a finished command from the error its Run

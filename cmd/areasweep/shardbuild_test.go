@@ -26,7 +26,8 @@ func otherBuild(t *testing.T) string {
 	return p
 }
 
-// runExe is runBin with the executable exe.
+// runExe runs the executable exe (runBin: the built areasweep) and returns
+// stdout, stderr and exit code.
 func runExe(t *testing.T, exe string, args ...string) (string, string, int) {
 	t.Helper()
 	cmd := exec.Command(exe, args...)

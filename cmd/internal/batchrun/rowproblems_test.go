@@ -59,7 +59,14 @@ func tableProblems(t *testing.T, name, body string) ([]string, error) {
 	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
 		t.Fatal(err)
 	}
-	_, err := resolve(&Options{Table: table, Out: filepath.Join(t.TempDir(), "out")})
+	return resolveProblems(t, &Options{Table: table, Out: filepath.Join(t.TempDir(), "out")})
+}
+
+// resolveProblems resolves o's table and returns its problems as
+// "study/column", with the error; the table must have problems.
+func resolveProblems(t *testing.T, o *Options) ([]string, error) {
+	t.Helper()
+	_, err := resolve(o)
 	var errs inputs.BatchErrors
 	if !errors.As(err, &errs) {
 		t.Fatalf("resolve: %v, want the table's problems", err)
@@ -98,15 +105,7 @@ func TestInputInsideOutRefused(t *testing.T) {
 	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
 		t.Fatal(err)
 	}
-	_, err := resolve(&Options{Table: table, Out: out})
-	var errs inputs.BatchErrors
-	if !errors.As(err, &errs) {
-		t.Fatalf("resolve: %v, want the table's problems", err)
-	}
-	var got []string
-	for _, e := range errs {
-		got = append(got, e.Study+"/"+e.Column)
-	}
+	got, err := resolveProblems(t, &Options{Table: table, Out: out})
 	if want := "other/region own/model beside/occurrences linked/extra"; strings.Join(got, " ") != want {
 		t.Errorf("problems %v, want %s\n%v", got, want, err)
 	}
