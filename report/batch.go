@@ -180,10 +180,15 @@ type BatchVerdict struct {
 // the reason column says why instead of staying empty as for a judged one.
 const noDifference = "no paired difference from the base extent could be formed"
 
-// noDifferenceWhy is noDifference, with the cause when the metric is
+// noDifferenceWhy is why model verdict mv of the study's results r has no
+// difference from the base extent: the model is scored on no extent
+// (unscoredWhy), else noDifference, with the cause when the metric is
 // undefined on the base extent itself (a partial ROC ratio whose 1 - E
 // crossing falls among tied test points, say).
-func noDifferenceWhy(mv ModelVerdict) string {
+func noDifferenceWhy(r *Results, mv ModelVerdict) string {
+	if why, none := unscoredWhy(r, mv.Model); none {
+		return "the model is " + why
+	}
 	if !mv.BaseDefined {
 		return noDifference + ": the metric is undefined on the base extent"
 	}
@@ -339,10 +344,10 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 }
 
 // unscoredWhy reports whether model is scored on no extent of r (some of
-// its scores recorded, none scored), and then
-// why: the reason its score on the base extent gives (the first extent's
-// when the base extent has none), as "scored on no extent; on extent
-// base: constant suitability (...)".
+// its scores recorded, none scored), and then why: the reason its score
+// on the base extent gives (the first extent's when the base extent has
+// none), as "scored on no extent; on extent base: constant suitability
+// (...)".
 func unscoredWhy(r *Results, model string) (string, bool) {
 	var first, base *Score
 	for i := range r.Scores {
@@ -419,10 +424,8 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
-		} else if why, none := unscoredWhy(r, model); none {
-			row.EffectNotJudged = "the model is " + why
 		} else {
-			row.EffectNotJudged = noDifferenceWhy(mv)
+			row.EffectNotJudged = noDifferenceWhy(r, mv)
 		}
 	}
 	for _, sc := range r.Scores {
@@ -535,10 +538,8 @@ func batchVerdict(r *Results, study string, mv ModelVerdict) BatchVerdict {
 	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
 		d := mv.Diffs[mv.Largest]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
-	} else if why, none := unscoredWhy(r, mv.Model); none {
-		v.NotJudged = "the model is " + why
 	} else {
-		v.NotJudged = noDifferenceWhy(mv)
+		v.NotJudged = noDifferenceWhy(r, mv)
 	}
 	return v
 }
