@@ -174,6 +174,9 @@ func newSphericalHull(pts []LonLat) (*sphericalHull, error) {
 	if len(pts) < 3 {
 		return nil, fmt.Errorf("extent: a convex hull needs 3 or more training points, have %d", len(pts))
 	}
+	if n := distinctPlaces(pts); n < 3 {
+		return nil, fmt.Errorf("extent: a convex hull needs training points at 3 or more places, have %d points at %d", len(pts), n)
+	}
 	var c [3]float64
 	vs := make([][3]float64, len(pts))
 	for i, p := range pts {
@@ -199,6 +202,21 @@ func newSphericalHull(pts []LonLat) (*sphericalHull, error) {
 		return nil, fmt.Errorf("extent: training points are collinear (on one great circle); the convex hull has no area")
 	}
 	return &sphericalHull{proj: g, poly: h}, nil
+}
+
+// distinctPlaces counts the distinct positions among pts, up to 3 (all
+// a hull needs): points repeated at one place (kept by --no-thin) were
+// called collinear.
+func distinctPlaces(pts []LonLat) int {
+	var seen []LonLat
+	for _, p := range pts {
+		if !slices.Contains(seen, p) {
+			if seen = append(seen, p); len(seen) == 3 {
+				break
+			}
+		}
+	}
+	return len(seen)
 }
 
 // minHullWidth (radians in the gnomonic plane, about 6.4 m on the ground

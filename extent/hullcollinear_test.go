@@ -24,7 +24,9 @@ func greatCirclePoint(a, b LonLat, f float64) LonLat {
 // before, three points on the meridian 12°E gave a hull of zero area (an
 // empty member) and buffers of the segment, while the same points on the
 // equator gave no hull members at all. A thin but real triangle (its
-// middle point 1 km off the line, our choice) still has a hull.
+// middle point 1 km off the line, our choice) still has a hull. Points
+// repeated at fewer than three places (as --no-thin keeps them) are told
+// so, not called collinear.
 func TestHullCollinear(t *testing.T) {
 	round6 := func(p LonLat) LonLat {
 		return LonLat{Lon: math.Round(p.Lon*1e6) / 1e6, Lat: math.Round(p.Lat*1e6) / 1e6}
@@ -50,6 +52,8 @@ func TestHullCollinear(t *testing.T) {
 		{"slanted long great circle", slant(LonLat{Lon: -60, Lat: -30}, LonLat{Lon: 10, Lat: 40}, 7), true},
 		{"thin triangle 1 km", []LonLat{{12, 41}, {12.0 + 1/(111.32*math.Cos(42*math.Pi/180)), 42}, {12, 43}}, false},
 		{"triangle", []LonLat{{12, 41}, {13, 42}, {12, 43}}, false},
+		{"three at one place", []LonLat{{12, 41}, {12, 41}, {12, 41}}, true},
+		{"five at two places", []LonLat{{12, 41}, {12, 41}, {13, 41}, {12, 41}, {13, 41}}, true},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -63,8 +67,12 @@ func TestHullCollinear(t *testing.T) {
 			if err == nil {
 				t.Fatalf("hull of collinear points built, %d vertices %s", len(h.poly), fmt.Sprint(h.boundary()))
 			}
-			if !strings.Contains(err.Error(), "collinear") {
-				t.Fatalf("error %q does not say collinear", err)
+			want := "collinear"
+			if strings.Contains(c.name, "place") {
+				want = "needs training points at 3 or more places"
+			}
+			if !strings.Contains(err.Error(), want) {
+				t.Fatalf("error %q does not say %q", err, want)
 			}
 		})
 	}
