@@ -3,6 +3,8 @@ package extent
 import (
 	"fmt"
 	"math"
+	"strconv"
+	"strings"
 
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
@@ -138,14 +140,11 @@ func (b *builder) touchingUnits(units []Unit, counts []int, k int, sel *godal.Ge
 // chain in order.
 func (b *builder) addEcoregions(spec Spec, baseK, k int, units []Unit, selected, touching []int) error {
 	ids := func(ix []int) string {
-		s := ""
+		names := make([]string, len(ix))
 		for n, i := range ix {
-			if n > 0 {
-				s += ","
-			}
-			s += units[i].ID
+			names[n] = units[i].ID
 		}
-		return s
+		return unitList(names)
 	}
 	type variant struct {
 		id, params string
@@ -186,6 +185,23 @@ func (b *builder) addEcoregions(spec Spec, baseK, k int, units []Unit, selected,
 		}
 	}
 	return nil
+}
+
+// unitList writes unit ids for a member's params, separated by commas.
+// An id that would blur the list (holding a comma, a semicolon, which
+// separates the params, a double quote, or a space at either end, as ids
+// told apart only by such spaces are) is written quoted, in Go's quoting
+// (as JSON's for these): "Forest, dry" and "Steppe" read as one unit "Forest"
+// and two others when written bare.
+func unitList(ids []string) string {
+	out := make([]string, len(ids))
+	for n, id := range ids {
+		out[n] = id
+		if strings.ContainsAny(id, ",;\"") || strings.TrimSpace(id) != id {
+			out[n] = strconv.Quote(id)
+		}
+	}
+	return strings.Join(out, ",")
 }
 
 // shiftLon returns a copy of g with every longitude moved by dlon degrees.

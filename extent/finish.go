@@ -134,7 +134,7 @@ func (b *builder) setStatus(cells []int64) {
 		}
 		if m.Cells == 0 {
 			m.Status = vocab.StatusEmpty
-			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell; not scored", m.ID))
+			f.Warnings = append(f.Warnings, fmt.Sprintf("extent %s covers no valid cell%s; not scored", m.ID, emptyWhy(*m)))
 			continue
 		}
 		for j := 0; j < k; j++ {
@@ -152,6 +152,24 @@ func (b *builder) setStatus(cells []int64) {
 			f.cells[k] = cellRuns{rows: make([]rowRuns, g.Height)}
 		}
 	}
+}
+
+// emptyWhy says, after ": ", what an empty member's emptiness means for
+// its kind (a shrunk region narrower than twice the shrink, a layer off
+// the raster or in another CRS), so that the warning points at the input
+// or setting to change; "" for kinds whose emptiness says it already.
+func emptyWhy(m Member) string {
+	switch {
+	case m.Kind == vocab.KindRegionBuffer && m.DistanceKm < 0:
+		return fmt.Sprintf(": no cell with data in the base region lies more than %g km inside its edge (the region is nowhere wider than about %g km, or its inner cells have no data); shrink by less, or leave %g out of --region-buffers", -m.DistanceKm, -2*m.DistanceKm, m.DistanceKm)
+	case m.Kind == vocab.KindUser:
+		return ": its polygons hold no centre of a cell with data (they lie off the raster, in another area or CRS, are thinner than a cell, or lie over cells without data); check the layer's area and CRS"
+	case m.Kind == vocab.KindPointBuffer:
+		return fmt.Sprintf(": no centre of a cell with data lies within %g km of a point (a radius under half a cell's diagonal, or points among cells without data)", m.DistanceKm)
+	case m.Kind == vocab.KindHull:
+		return ": the hull holds no centre of a cell with data (it is thinner than a cell, or lies over cells without data)"
+	}
+	return ""
 }
 
 // countPoints counts the training and test points in each member (cells

@@ -174,6 +174,9 @@ func newSphericalHull(pts []LonLat) (*sphericalHull, error) {
 	if len(pts) < 3 {
 		return nil, fmt.Errorf("extent: a convex hull needs 3 or more training points, have %d", len(pts))
 	}
+	if n := distinctPlaces(pts); n < 3 {
+		return nil, fmt.Errorf("extent: a convex hull needs training points at 3 or more places, have %d points at %d", len(pts), n)
+	}
 	var c [3]float64
 	vs := make([][3]float64, len(pts))
 	for i, p := range pts {
@@ -195,10 +198,53 @@ func newSphericalHull(pts []LonLat) (*sphericalHull, error) {
 		plane[i] = [2]float64{x, y}
 	}
 	h := planarHull(plane)
-	if len(h) < 3 {
-		return nil, fmt.Errorf("extent: training points are collinear; the convex hull has no area")
+	if len(h) < 3 || hullWidth(h) < minHullWidth {
+		return nil, fmt.Errorf("extent: training points are collinear (on one great circle); the convex hull has no area")
 	}
 	return &sphericalHull{proj: g, poly: h}, nil
+}
+
+// distinctPlaces counts the distinct positions among pts, up to 3 (all
+// a hull needs): points repeated at one place (kept by --no-thin) were
+// called collinear.
+func distinctPlaces(pts []LonLat) int {
+	var seen []LonLat
+	for _, p := range pts {
+		if !slices.Contains(seen, p) {
+			if seen = append(seen, p); len(seen) == 3 {
+				break
+			}
+		}
+	}
+	return len(seen)
+}
+
+// minHullWidth (radians in the gnomonic plane, about 6.4 m on the ground
+// or less) is our choice of the width under which a hull is a line: points
+// on one great circle keep, after rounding in the gnomonic projection or in
+// a CSV's decimals (0.11 m at 6), a sliver of a hull that held no cell but
+// was buffered as a segment, while the same points on the equator, exactly
+// in line, had no hull. No grid in use has cells that narrow.
+const minHullWidth = 1e-6
+
+// hullWidth estimates the width of the convex polygon h (counter-clockwise,
+// in the plane) as its area over the diagonal of its bounding box: between
+// a third and all of its smallest width, as a convex set's area lies
+// between half and all of its width times its diameter.
+func hullWidth(h [][2]float64) float64 {
+	area := 0.0
+	minX, minY, maxX, maxY := math.Inf(1), math.Inf(1), math.Inf(-1), math.Inf(-1)
+	for i, a := range h {
+		b := h[(i+1)%len(h)]
+		area += a[0]*b[1] - b[0]*a[1]
+		minX, maxX = math.Min(minX, a[0]), math.Max(maxX, a[0])
+		minY, maxY = math.Min(minY, a[1]), math.Max(maxY, a[1])
+	}
+	diag := math.Hypot(maxX-minX, maxY-minY)
+	if diag == 0 {
+		return 0
+	}
+	return math.Abs(area) / 2 / diag
 }
 
 func (s *sphericalHull) contains(lon, lat float64) bool {

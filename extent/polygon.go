@@ -803,15 +803,28 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 			defer t.Close()
 		}
 	}
-	var centre *godal.Geometry
+	var centre, centrePt *godal.Geometry
 	if lsr.Geographic() && !g.Geographic {
 		if c, err := centreCell(g, lsr, false); err == nil {
 			centre = c
 			defer centre.Close()
 		}
+		if c, err := centreCell(g, lsr, true); err == nil {
+			centrePt = c
+			defer centrePt.Close()
+		}
 	}
 	for _, id := range order {
 		geom := byID[id]
+		// Whether geom, as the user drew it, holds none of the raster's
+		// centre cell: neither the cell nor its centre point (a cell
+		// with a corner on a pole, on a polar grid, has no sane outline
+		// in degrees).
+		missedCentre := false
+		if centre != nil && centrePt != nil {
+			hit, err := geom.Intersects(centre)
+			missedCentre = err == nil && !hit && !geom.Contains(centrePt)
+		}
 		if lsr.Geographic() && !g.Geographic {
 			// Longitude edges are checked here, where they are the
 			// user's: on a projected raster one that runs round a pole
@@ -847,6 +860,14 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 			// sliver along the antimeridian, and the run said the region
 			// was "smaller or thinner than the cells".
 			return nil, fmt.Errorf("extent: %s covers the raster's centre cell in its own CRS but not once projected to the raster's CRS: its outline runs round the globe (along 180 degrees of longitude or over a pole) or beyond what the raster's projection can show; clip it to the study area first (e.g. ogr2ogr -clipsrc WEST SOUTH EAST NORTH OUT.gpkg %s, in degrees)", unitName(path, id), path)
+		}
+		if missedCentre && holdsCentre(geom, g) {
+			// A polygon holding the point the projection sends to the
+			// rim of its map (the far side of the globe from an azimuthal
+			// projection's centre: 170 W 52 S for LAEA Europe) comes out
+			// inside out: its outline encloses the map's centre, and a
+			// unit south-east of New Zealand covered all of Europe.
+			return nil, fmt.Errorf("extent: %s lies away from the raster's centre cell in its own CRS but holds it once projected to the raster's CRS: it holds the point the raster's projection puts on the rim of its map (the far side of the globe from the projection's centre), around which the polygon turns inside out; clip the layer to the study area first (e.g. ogr2ogr -clipsrc WEST SOUTH EAST NORTH OUT.gpkg %s, in degrees)", unitName(path, id), path)
 		}
 		if !lsr.Geographic() && g.Geographic {
 			// A projected layer has no antimeridian of its own: its edges

@@ -556,7 +556,8 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model without path", []string{"run", "--model", "m=", "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no PATH"}, "", ""},
 		{"model without name", []string{"run", "--model", f.model, "--occurrences", f.occ, "--region", f.region}, 2, []string{"--model", "no '='"}, "", ""},
 		{"model name twice", f.run("--model", "m="+f.model2), 2, []string{"name \"m\" is given twice"}, "", ""},
-		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='"}, "", ""},
+		// Its example is a polygon layer, not a model raster.
+		{"extra without name", f.run("--extra", f.region), 2, []string{"--extra", "no '='", "for example lakes=layers/lakes.gpkg"}, "", ""},
 		{"unknown command", []string{"bogus"}, 2, []string{`unknown command "bogus"`, "areasweep --help"}, "", ""},
 		{"completion for an unknown shell", []string{"completion", "tcsh"}, 2, []string{`unknown command "tcsh"`, "areasweep completion --help"}, "", ""},
 		{"merge given nothing", []string{"merge", "--out", filepath.Join(f.outs, "merged")}, 2, []string{"no partial file given"}, "", filepath.Join(f.outs, "merged")},

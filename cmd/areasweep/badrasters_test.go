@@ -77,7 +77,9 @@ func runBadCasesH26(t *testing.T, f *badFixture, cases []badCase) {
 // shapefile without its .dbf, a file of two rasters or one of them named
 // as GDAL names it (NETCDF:"x.nc":var), a named pipe as a model or layer (GDAL
 // would wait for its writer), a region smaller than a cell or over cells
-// without data only (told apart from one elsewhere), and --out (with
+// without data only (told apart from one elsewhere; in extents too, which
+// knows the cells with data before it builds, and told such a region it
+// was smaller than a cell), and --out (with
 // --force) the folder of a virtual raster's source. Each is refused with exit 2 naming the model
 // or input and the file, in plain words.
 func TestBadRastersAndLayers(t *testing.T) {
@@ -286,6 +288,8 @@ func TestBadRastersAndLayers(t *testing.T) {
 			words: []string{"tiny.geojson lies over", "holds no cell's centre", "smaller or thinner than the cells of 0.25 x 0.25"}},
 		{name: "region over cells without data only", args: f.withRegion(f.file("nodataonly.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``))), code: 2,
 			words: []string{"nodataonly.geojson covers no cell with data", "cells without data only"}},
+		{name: "extents: region over cells without data only", args: append([]string{"extents"}, f.withRegion(f.file("nodataonly2.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``)))[1:]...), code: 2,
+			words: []string{"nodataonly2.geojson covers no cell with data", "cells without data only"}},
 		{name: "out holds a virtual raster's source, force", args: f.withModel(viaVRT, "--force"), code: 2, words: []string{"--out " + srcDir, "holds the input", "src.tif", "whatever --force says"}, keepOut: srcDir},
 		{name: "model file holding two rasters", args: f.withModel(twoRasters), code: 2, words: []string{"model m", "two.gpkg holds 2 rasters (suit1, suit2), not one", "gdal_translate 'GPKG:" + twoRasters + ":suit1' suit1.tif"}},
 		{name: "model given as a GDAL subdataset name", args: f.withModel("GPKG:" + twoRasters + ":suit2"), code: 2, words: []string{"model m", "is a GDAL subdataset name, not a file", "gdal_translate GPKG:" + twoRasters + ":suit2 OUT.tif"}},

@@ -618,10 +618,11 @@ func floatList(key string, v *yaml.Node) ([]float64, error) {
 // namedPaths accepts a list of "NAME=PATH" texts, a single such text, or a
 // mapping NAME: PATH (kept in file order). Paths are resolved against dir.
 func namedPaths(key string, v *yaml.Node, dir string) ([]string, error) {
-	example := fmt.Sprintf("write for example\n    %s:\n      - gbm=models/gbm.tif\n      - glm=models/glm.tif", key)
+	exA, exB := namedExamples(key)
+	example := fmt.Sprintf("write for example\n    %s:\n      - %s\n      - %s", key, exA, exB)
 	seen := map[string]int{}
 	one := func(n *yaml.Node, text string) (string, error) {
-		name, p, err := ParseNamedPath(text)
+		name, p, err := ParseNamedPathOf(key, text)
 		if err != nil {
 			return "", &lineErr{n.Line, fmt.Errorf("%w: %w", ErrBadValue, noPrefix{err})}
 		}
@@ -698,7 +699,24 @@ var nameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,40}$`)
 // letters, digits, '_', '-' or '.'; PATH is not empty. Spaces around either
 // part are removed.
 func ParseNamedPath(s string) (name, path string, err error) {
-	const advice = "write NAME=PATH, where NAME is 1 to 40 letters, digits, '_', '-' or '.', for example gbm=models/gbm.tif"
+	return ParseNamedPathOf("model", s)
+}
+
+// namedExamples returns two NAME=PATH examples for key (a flag or study
+// key without dashes): polygon layers for extra, model rasters otherwise
+// (an --extra refused was shown a model raster to give instead).
+func namedExamples(key string) (a, b string) {
+	if key == "extra" {
+		return "lakes=layers/lakes.gpkg", "wetlands=layers/wetlands.gpkg"
+	}
+	return "gbm=models/gbm.tif", "glm=models/glm.tif"
+}
+
+// ParseNamedPathOf is ParseNamedPath for the flag or study key named key
+// (without dashes), whose messages show an example of its own values.
+func ParseNamedPathOf(key, s string) (name, path string, err error) {
+	ex, _ := namedExamples(key)
+	advice := "write NAME=PATH, where NAME is 1 to 40 letters, digits, '_', '-' or '.', for example " + ex
 	i := strings.IndexByte(s, '=')
 	if i < 0 {
 		return "", "", fmt.Errorf("%w: %s has no '='; %s", ErrNamedPath, shown(s), advice)

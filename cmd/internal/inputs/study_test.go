@@ -183,6 +183,10 @@ func TestParseStudyErrors(t *testing.T) {
 		{"model without =", "model:\n  - gbm.tif\n", ErrNamedPath, 2, "model", []string{`"gbm.tif" has no '='`, "gbm=models/gbm.tif"}},
 		{"model bad name", "model:\n  - ok=a.tif\n  - \"my model=b.tif\"\n", ErrNamedPath, 3, "model", []string{`name "my model"`}},
 		{"extra without path", "extra: mask=\n", ErrNamedPath, 1, "extra", []string{"no PATH"}},
+		// An extra layer's example is a polygon layer: it was a model
+		// raster, gbm=models/gbm.tif.
+		{"extra without =", "extra:\n  - lakes.gpkg\n", ErrNamedPath, 2, "extra", []string{`"lakes.gpkg" has no '='`, "for example lakes=layers/lakes.gpkg"}},
+		{"extra bad name", "extra: \"my lakes=l.gpkg\"\n", ErrNamedPath, 1, "extra", []string{`name "my lakes"`, "for example lakes=layers/lakes.gpkg"}},
 		{"model mapping bad entry", "model:\n  a: [x]\n", ErrBadValue, 2, "model", []string{"NAME: PATH"}},
 		// A mapping's key is the name alone: "good=x" was split at its
 		// '=' into the name good and the path x=a.tif, which "did not

@@ -9,6 +9,8 @@ import (
 	"areasweep/extent"
 	"areasweep/extent/vocab"
 	"areasweep/report"
+
+	"github.com/paulmach/orb"
 )
 
 // buildFamily builds the extent family and fills Results.Extents.
@@ -91,18 +93,29 @@ func (s *Study) Clip(valid *extent.Valid) error {
 
 // noOverlap explains a base region that holds no cell (valid: "valid "
 // when the cells without data were left out): a region lying over the
-// raster holds no cell's centre (the rule of Fill), so it is smaller or
-// thinner than a cell; one elsewhere is in another area or CRS.
+// raster that holds cells' centres (the rule of Fill) holds cells without
+// data only; one that holds none is smaller or thinner than a cell; one
+// elsewhere is in another area or CRS. Whether it holds centres is asked
+// of the region itself: extents knows the cells with data before it
+// builds, so its base comes out empty either way.
 func (s *Study) noOverlap(valid string) error {
 	g, b := s.grid, s.fam.Base.Grid.Bound()
 	gb := g.Bounds()
 	if len(s.fam.Base.Grid) > 0 && b.Max[0] > gb[0] && b.Min[0] < gb[2] && b.Max[1] > gb[1] && b.Min[1] < gb[3] {
-		if valid != "" {
+		if holdsCentre(g, s.fam.Base.Grid) {
 			return fmt.Errorf("%w: %s covers no cell with data of %s (it lies over cells without data only); check that this is the region you meant", extent.ErrNoOverlap, s.o.Region, s.models[0].Path)
 		}
 		return fmt.Errorf("%w: %s lies over %s but holds no cell's centre (a cell belongs to a polygon when its centre does): it is smaller or thinner than the cells of %g x %g; draw the region larger than a cell", extent.ErrNoOverlap, s.o.Region, s.models[0].Path, g.GeoTransform[1], -g.GeoTransform[5])
 	}
 	return fmt.Errorf("%w: %s covers no %scell of %s; check that both are in the same area and CRS", extent.ErrNoOverlap, s.o.Region, valid, s.models[0].Path)
+}
+
+// holdsCentre reports whether the polygons mp (in g's CRS) hold the centre
+// of any cell of g, with or without data.
+func holdsCentre(g *extent.Grid, mp orb.MultiPolygon) bool {
+	found := false
+	extent.Fill(g, mp, func(row, c0, c1 int) { found = found || c1 > c0 })
+	return found
 }
 
 // recordExtents copies the (clipped) family into Results.Extents.

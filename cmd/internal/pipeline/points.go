@@ -1005,6 +1005,12 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 		}
 	}
 	msg := fmt.Sprintf("%s: no test point falls on a cell with data of %s (%s); nothing can be scored", o.Occurrences, s.models[0].Name, s.models[0].Path)
+	if c.Train > 0 && c.OutsideRaster > 0 && c.NoData == 0 && c.Thinned == 0 {
+		// The training points lie on the raster: only the test points
+		// miss it (it was said of every point).
+		test := roleOnly(s.points, vocab.RoleTest)
+		return fmt.Errorf("%s: every test point (%d) lies outside the raster %s, while %d training point(s) lie on it; nothing can be scored; check the test records' coordinates, or hold out records that lie on the raster as role test%s", o.Occurrences, len(test), s.models[0].Path, c.Train, pointsBeside(test, s.grid))
+	}
 	if c.OutsideRaster > 0 && c.NoData == 0 && c.Thinned == 0 {
 		msg = fmt.Sprintf("%s: every point lies outside the raster %s; nothing can be scored", o.Occurrences, s.models[0].Path)
 		if o.OccurrencesCRS != "" && s.rawDegrees {
@@ -1020,6 +1026,17 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 		}
 	}
 	return errors.New(msg)
+}
+
+// roleOnly returns the points of role r.
+func roleOnly(pts []report.Point, r vocab.Role) []report.Point {
+	var out []report.Point
+	for _, p := range pts {
+		if p.Role == r {
+			out = append(out, p)
+		}
+	}
+	return out
 }
 
 // swappedOnGrid returns the cells (row*width+col) of the latitude-longitude

@@ -20,7 +20,9 @@ import (
 // (longitude 30, swapped to 75 W, 30 N) on data. The run said the
 // columns were probably swapped; now it says where the points and the
 // raster lie. Points truly in the box written swapped (longitude 30..50,
-// latitude -80) are still named as swapped. Coordinates by hand.
+// latitude -80) are still named as swapped. Test points off the raster
+// beside training points on it are told as such: it said every point lay
+// outside. Coordinates by hand.
 func TestNoTestPointSwappedHint(t *testing.T) {
 	extent.Register()
 	dir := t.TempDir()
@@ -71,12 +73,17 @@ func TestNoTestPointSwappedHint(t *testing.T) {
 		name      string
 		lons      []float64
 		lat       float64
+		train     int // scored training points, on the raster
 		want, not string
 	}{
-		{"antarctic", []float64{-55, -40, -25, -10, 5, 30, 70, 85}, -75,
+		{"antarctic", []float64{-55, -40, -25, -10, 5, 30, 70, 85}, -75, 0,
 			"check that the points and the raster cover the same area (the points lie at latitudes -75 to -75, longitudes -55 to 85; the raster covers latitudes -60 to 90, longitudes -180 to 180)", "swapped"},
-		{"swapped", []float64{30, 35, 40, 45, 50}, -80,
+		{"swapped", []float64{30, 35, 40, 45, 50}, -80, 0,
 			"with longitude and latitude swapped, 5 of the 5 points would lie on cells with data", "cover the same area"},
+		// Training points on the raster, test points off it: it said
+		// "every point lies outside the raster".
+		{"test points only", []float64{30, 35}, -80, 3,
+			"every test point (2) lies outside the raster " + p + ", while 3 training point(s) lie on it; nothing can be scored; check the test records' coordinates, or hold out records that lie on the raster as role test (the points lie at latitudes -80 to -80, longitudes 30 to 35;", "every point"},
 	} {
 		r, err := pass.Open(p)
 		if err != nil {
@@ -88,6 +95,10 @@ func TestNoTestPointSwappedHint(t *testing.T) {
 			s.points = append(s.points, report.Point{ID: i + 2, Role: vocab.RoleTest, Lon: lon, Lat: c.lat, Status: vocab.PointOutsideRaster})
 		}
 		s.res.PointCounts.OutsideRaster = len(c.lons)
+		for i := range c.train {
+			s.points = append(s.points, report.Point{ID: 100 + i, Role: vocab.RoleTrain, Lon: -80, Lat: 40, Status: vocab.PointScored})
+		}
+		s.res.PointCounts.Train = c.train
 		msg := s.noTestPoint(r).Error()
 		r.Close()
 		if !strings.Contains(msg, c.want) || strings.Contains(msg, c.not) {

@@ -97,7 +97,7 @@ func (o *Options) validateNames() error {
 // seen (keyed by the name in lower case): prev is the name seen before
 // that equals it ignoring case, "" when there is none.
 func namedOnce(flag, v string, seen map[string]string) (name, prev string, err error) {
-	name, _, err = inputs.ParseNamedPath(v)
+	name, _, err = inputs.ParseNamedPathOf(strings.TrimPrefix(flag, "--"), v)
 	if err != nil {
 		return "", "", fmt.Errorf("%s %q: %w", flag, v, err)
 	}
