@@ -37,3 +37,37 @@ func TestAntipodeRegionOnProjectedGrid(t *testing.T) {
 		t.Errorf("Australia covers %d cells of a raster in Europe, want 0", n)
 	}
 }
+
+// TestAntipodeUnitLeftOut: in a layer of units (ecoregions, read with an
+// id field) a unit around the point opposite the raster's projection
+// centre is left out with a warning naming it, not refused: a world layer
+// of units on a regional grid holds such units as a matter of course (an
+// Antarctic unit on a north polar grid). The other units are read as
+// before.
+func TestAntipodeUnitLeftOut(t *testing.T) {
+	dir := t.TempDir()
+	g, err := NewGrid(100, 100, [6]float64{3821000, 10000, 0, 3710000, 0, -10000}, "EPSG:3035")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	path := writeGeoJSON(t, dir, "units.geojson", []string{"far", "europe"}, [][][2]float64{
+		{{-175, -55}, {-165, -55}, {-165, -45}, {-175, -45}, {-175, -55}},
+		{{5, 48}, {15, 48}, {15, 56}, {5, 56}, {5, 48}},
+	})
+	units, warns, err := ReadUnits(path, "id", g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(units) != 1 || units[0].ID != "europe" {
+		t.Fatalf("units %v, want europe only", units)
+	}
+	if len(warns) != 1 || !strings.Contains(warns[0], `unit "far" lies on the far side of the globe from the raster`) || !strings.Contains(warns[0], "it is left out") {
+		t.Errorf("warnings %q", warns)
+	}
+	n := 0
+	Fill(g, units[0].Shape.Grid, func(row, c0, c1 int) { n += c1 - c0 })
+	if n == 0 || n == 100*100 {
+		t.Errorf("europe covers %d of the raster's 10000 cells: want some, not all", n)
+	}
+}

@@ -128,7 +128,7 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 	if w := spacedIDs(path, src.field, order); w != "" {
 		warns = append(warns, w)
 	}
-	units, err := src.onGrid(byID, order, g)
+	units, err := src.onGrid(byID, order, g, &warns)
 	if err != nil {
 		return nil, warns, err
 	}
@@ -787,8 +787,9 @@ func fieldTypeName(t godal.FieldType) string {
 var newTransform = godal.NewTransform
 
 // onGrid puts each id's geometry in the grid's CRS and returns the units
-// in order.
-func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, g *Grid) ([]Unit, error) {
+// in order, appending to warns the units of a layer of units it leaves
+// out (see farSideUnit).
+func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, g *Grid, warns *[]string) ([]Unit, error) {
 	lsr, path := s.lsr, s.path
 	units := make([]Unit, 0, len(order))
 	// One transformation and one centre cell for the whole layer: making
@@ -867,6 +868,12 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 			// projection's centre: 170 W 52 S for LAEA Europe) comes out
 			// inside out: its outline encloses the map's centre, and a
 			// unit south-east of New Zealand covered all of Europe.
+			if s.field != "" {
+				// A unit of a world layer of units (ecoregions) on the
+				// far side of the globe: left out, with a warning.
+				*warns = append(*warns, farSideUnit(path, id))
+				continue
+			}
 			return nil, fmt.Errorf("extent: %s lies away from the raster's centre cell in its own CRS but holds it once projected to the raster's CRS: it holds the point the raster's projection puts on the rim of its map (the far side of the globe from the projection's centre), around which the polygon turns inside out; clip the layer to the study area first (e.g. ogr2ogr -clipsrc WEST SOUTH EAST NORTH OUT.gpkg %s, in degrees)", unitName(path, id), path)
 		}
 		if !lsr.Geographic() && g.Geographic {
@@ -892,6 +899,19 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 		units = append(units, Unit{ID: id, Shape: sh, geom: geom})
 	}
 	return units, nil
+}
+
+// farSideUnit is the warning for a unit of a layer of units (read with an
+// id field: ecoregions) left out because it holds the point the raster's
+// projection puts on the rim of its map, around which it would turn
+// inside out and cover the raster. A region or an extra layer, the study's
+// own polygons, is refused for it instead; a world layer of units on a
+// regional grid holds such units as a matter of course (an Antarctic unit
+// on a north polar grid), and they lie on the far side of the globe from
+// the raster's centre, where a unit does not reach the raster short of
+// spanning half the globe.
+func farSideUnit(path, id string) string {
+	return fmt.Sprintf("%s lies on the far side of the globe from the raster: it holds the point the raster's projection puts on the rim of its map, around which it would turn inside out and cover every cell; it is left out (clip the layer to the study area, e.g. ogr2ogr -clipsrc WEST SOUTH EAST NORTH OUT.gpkg %s, in degrees, to leave such units out yourself)", unitName(path, id), path)
 }
 
 // validProjected returns geom, a unit valid in its layer's CRS now
