@@ -21,3 +21,19 @@ func TestNullFigureCaptionWords(t *testing.T) {
 			"Each bar is a test on its own extent, not adjusted for the number of extents."},
 		[]string{"beats", "no difference"})
 }
+
+// TestMethodsDefinesScores: the methods text named the partial ROC ratio
+// "at E = 0.05" without saying what E or the ratio is, gave the binomial
+// test without its null, and cited the continuous Boyce index without
+// saying it is a Spearman correlation over a moving window, so a
+// reviewer could not tell which of the papers' quantities was computed.
+// Each is now defined in the sentence as Peterson et al. (2008), Anderson
+// et al. (2003) and Hirzel et al. (2006) define it.
+func TestMethodsDefinesScores(t *testing.T) {
+	checkWords(t, "methods", methodsText(analyzedSample(t)), []string{
+		"(Peterson et al. 2008: the area under the ROC curve where at most a share E of the test records is omitted, over the area under the random line there; 1 is random) at E = ",
+		"with x_E, the share of the area where the curve reaches 1 − E, interpolated linearly",
+		"one-sided binomial test of the test records at or above the threshold against the share of the extent's area at or above it (Anderson et al. 2003)",
+		"(Boyce et al. 2002; Hirzel et al. 2006: the Spearman rank correlation between a moving window's model value and its ratio of the share of test records to the share of area in it; window of ",
+	}, nil)
+}
