@@ -1,6 +1,9 @@
 package report
 
-import "testing"
+import (
+	"strings"
+	"testing"
+)
 
 // TestNullFigureCaptionWords: the model-minus-null figure read a bar
 // wholly above 0 as "the model beats the null" and one across 0 as "no
@@ -36,4 +39,35 @@ func TestMethodsDefinesScores(t *testing.T) {
 		"one-sided binomial test of the test records at or above the threshold against the share of the extent's area at or above it (Anderson et al. 2003)",
 		"(Boyce et al. 2002; Hirzel et al. 2006: the Spearman rank correlation between a moving window's model value and its ratio of the share of test records to the share of area in it; window of ",
 	}, nil)
+}
+
+// TestTermsNullAndUnweighted: the Terms said of a user's null that a
+// model not above it beyond noise "does no better there than that
+// reference", reading an interval across 0 as evidence of no difference,
+// and never defined "AUC (cells unweighted)", which the verdicts and the
+// methods' reply read beside the AUC. The null's entry now says such a
+// model gives no evidence that it does better, and the unweighted AUC has
+// an entry of its own.
+func TestTermsNullAndUnweighted(t *testing.T) {
+	r := withNull(t)
+	analyzed(t, r)
+	for i := range r.Models {
+		if r.Models[i].IsNull() {
+			r.Models[i].NullKind = NullRaster
+		}
+	}
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := string(page)
+	i := strings.Index(p, `<section id="terms">`)
+	if i < 0 {
+		t.Fatal("no Terms section")
+	}
+	terms := p[i : i+strings.Index(p[i:], "</section>")]
+	checkWords(t, "terms", terms, []string{
+		"A model not above it beyond noise on an extent gives, there, no evidence that it does better than that reference.",
+		"<dt>AUC (cells unweighted)</dt><dd>The same with every cell counted once, whatever its area",
+	}, []string{"does no better there"})
 }
