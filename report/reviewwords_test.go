@@ -71,3 +71,21 @@ func TestTermsNullAndUnweighted(t *testing.T) {
 		"<dt>AUC (cells unweighted)</dt><dd>The same with every cell counted once, whatever its area",
 	}, []string{"does no better there"})
 }
+
+// TestGapNamesItsSign: the headline and the model-minus-null sentences
+// said "the gap moves from +0.042 on points_50km ... to -0.055", leaving
+// the reader to guess whether the gap is model minus null or null minus
+// model. The headline now names the two sides ("good minus
+// distance_null moves from") and the sentence says "the difference
+// (model minus null) runs from"; neither says "the gap" there.
+func TestGapNamesItsSign(t *testing.T) {
+	r := withNull(t)
+	r.Paired = append(r.Paired, nullPaired(r)...)
+	s := analyzed(t, r)
+	checkWords(t, "headline", s.Headline, []string{"; good minus " + DistanceNullName + " "}, []string{"; the gap "})
+	for _, an := range s.AboveNull {
+		if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent && !an.allZero() {
+			checkWords(t, "sentence", an.Sentence, []string{"extents the difference (model minus null) "}, []string{"the gap runs"})
+		}
+	}
+}

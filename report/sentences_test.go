@@ -266,8 +266,8 @@ func TestHeadlineGapEnds(t *testing.T) {
 			t.Fatalf("the fixture's smallest and largest extent are both %s", an.SmallestExtent)
 		}
 		sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
-		want := fmt.Sprintf("the gap moves from %s on %s (the smallest extent) to %s on %s (the largest)",
-			signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
+		want := fmt.Sprintf("%s minus %s moves from %s on %s (the smallest extent) to %s on %s (the largest)",
+			an.Model, an.Null, signed3(sm.Diff), an.SmallestExtent, signed3(lg.Diff), an.LargestExtent)
 		if sm.Diff == lg.Diff {
 			t.Fatalf("the fixture's gap is %v at both ends", sm.Diff)
 		}

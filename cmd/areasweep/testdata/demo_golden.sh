@@ -188,6 +188,12 @@
 #     10,842, which an independent count with pyproj Geod to the boundary
 #     cut every 0.0002 degrees confirms), its scores and what derives from
 #     them moved; every other extent is unchanged.
+#   - rewritten on branch h7 of 2026-12-05 (the model-minus-null sentences
+#     name the sign of the difference: the headline's "the gap moves from"
+#     reads "good minus distance_null moves from", and each above-null
+#     sentence's "the gap runs from" reads "the difference (model minus
+#     null) runs from": sentences under sensitivity only, every number
+#     and scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
