@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -88,4 +89,48 @@ func TestGapNamesItsSign(t *testing.T) {
 			checkWords(t, "sentence", an.Sentence, []string{"extents the difference (model minus null) "}, []string{"the gap runs"})
 		}
 	}
+}
+
+// TestOmissionRankingWords: two models' omission rates were compared as
+// "coarse is better than good beyond noise on 12 of 13 extents", but each
+// model's threshold keeps its own share of the area, and one that keeps
+// more omits fewer test points whatever the model's skill (the demo's
+// truncated coarse "beat" good so while below it by AUC on every extent).
+// The sentence now says which model omits fewer test points and that
+// this alone does not make it better; AUC keeps "better".
+func TestOmissionRankingWords(t *testing.T) {
+	r := loadSample(t)
+	omission := ""
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		if p.Kind != PairedKindModel || p.Model != "good" || p.OtherModel != "truncated" || !strings.HasPrefix(p.Metric, "omission_") {
+			continue
+		}
+		if omission == "" {
+			omission = p.Metric
+		}
+		if p.Metric == omission {
+			// Worked by hand: good omits 0.1 more, interval wholly above 0,
+			// on more common test points than the resamples' cut-off.
+			p.Defined, p.CommonPoints, p.Resamples, p.NotFormed, p.NotJudged = true, 40, r.Settings.Iterations, 0, ""
+			p.Diff, p.Low, p.High = 0.1, 0.05, 0.15
+		}
+	}
+	if omission == "" {
+		t.Fatal("the sample has no omission comparison of good and truncated")
+	}
+	s := analyzed(t, r)
+	for _, rk := range s.Rankings {
+		if rk.Metric == omission && rk.Model == "good" && rk.Other == "truncated" {
+			if rk.Extents < 1 {
+				t.Fatalf("nothing compared: %+v", rk)
+			}
+			checkWords(t, "ranking", rk.Sentence, []string{
+				fmt.Sprintf("truncated omits fewer test points than good beyond noise on %d of %d extent", rk.Extents, rk.Extents),
+				"so fewer omissions alone do not make a better model",
+			}, []string{"better than"})
+			return
+		}
+	}
+	t.Fatalf("no ranking of %s", omission)
 }

@@ -194,6 +194,11 @@
 #     sentence's "the gap runs from" reads "the difference (model minus
 #     null) runs from": sentences under sensitivity only, every number
 #     and scores.csv unchanged).
+#   - rewritten again on branch h7 (a comparison of two models' omission
+#     rates says which "omits fewer test points" instead of "is better":
+#     the demo's "coarse is better than good beyond noise on 12 of 13
+#     extents" at the 10th percentile; that sentence of results.json only,
+#     every number and scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
