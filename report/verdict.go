@@ -255,6 +255,11 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		// Every difference is 0: naming one extent as "the largest" would
 		// pick it arbitrarily.
 		largest = "every one is 0"
+		if m.Kind == MetricOmission {
+			// Not a finding: on the test points two extents share, a
+			// threshold from the training points omits the same ones.
+			largest += ", as it must be: " + omissionByConstruction
+		}
 	}
 	notOn := ""
 	if len(mv.Undefined) > 0 {
@@ -330,6 +335,10 @@ func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
 	}
 	return most, len(mv.Diffs) > 0
 }
+
+// omissionByConstruction says why an omission rate's paired difference
+// between extents is 0 whatever the data: its "robust" is not evidence.
+const omissionByConstruction = "the threshold comes from the training points, so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
 
 // boyceDescription describes, without judging, the Boyce index of a
 // model (name: "Boyce index of M") across extents by its differences from

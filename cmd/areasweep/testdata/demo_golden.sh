@@ -199,6 +199,10 @@
 #     the demo's "coarse is better than good beyond noise on 12 of 13
 #     extents" at the 10th percentile; that sentence of results.json only,
 #     every number and scores.csv unchanged).
+#   - rewritten a third time on branch h7 (an omission rate's robust
+#     verdict, whose paired differences are 0 by construction, says so
+#     after "every one is 0": those verdict sentences of results.json only,
+#     every number and scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
