@@ -156,3 +156,23 @@ func TestOmissionRobustByConstruction(t *testing.T) {
 	}
 	checkWords(t, "methods", methodsText(r), []string{"stayed within the tolerance for every model (an omission rate by construction: its threshold comes from the training records, so on the test records two extents share it omits the same ones)."}, nil)
 }
+
+// TestKendallWReadsPointEstimates: two models within noise of each other
+// on every extent (a model and a copy with tiny noise) got "Kendall's W =
+// 1.000 ...: every extent orders the models as base does", and the page
+// "1 = the same order everywhere", which reads as a firm order. W reads
+// the point estimates however small their differences; the sentence and
+// the page now say so and point to the paired differences.
+func TestKendallWReadsPointEstimates(t *testing.T) {
+	d := &Decomposition{Metric: "auc", Models: []string{"a", "b"}, Extents: []string{"e1", "e2"}, Defined: true,
+		ShareExtent: 0.99, ShareModel: 0.01, KendallWDefined: true, KendallW: 1, BaseExtent: "e1"}
+	checkWords(t, "decomposition", decompositionSentence(MetricInfo{Key: "auc", Label: "AUC"}, d),
+		[]string{"every extent orders the models' point estimates as e1 does; see the paired model differences for whether that order is beyond noise."},
+		[]string{"orders the models as"})
+	r := analyzedSample(t)
+	page, err := htmlPage(r, nil, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "page", string(page), []string{"agree on the order of the models' point estimates (1 = the same order everywhere, however small the differences; tie-corrected)"}, nil)
+}

@@ -203,6 +203,10 @@
 #     verdict, whose paired differences are 0 by construction, says so
 #     after "every one is 0": those verdict sentences of results.json only,
 #     every number and scores.csv unchanged).
+#   - rewritten a fourth time on branch h7 (a decomposition's Kendall's W
+#     of 1 says the extents order the models' point estimates as base
+#     does and points to the paired differences: those sentences of
+#     results.json only, every number and scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
