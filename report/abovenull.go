@@ -244,7 +244,9 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		}
 		// "This describes ..." as a sentence of its own: a bracket after
 		// the counts' "(our cut-off)" read as two brackets in a row.
-		fmt.Fprintf(&b, " Across %d extents the gap %s; %s. This describes the family of extents; it is not a test.",
+		// "the difference (model minus null)", not "the gap": the sign
+		// of a gap is left to guess.
+		fmt.Fprintf(&b, " Across %d extents the difference (model minus null) %s; %s. This describes the family of extents; it is not a test.",
 			an.Defined, gapSpan("runs from", s.Diff, an.SmallestExtent, small, l.Diff, an.LargestExtent, large), counts)
 	}
 	return b.String()
@@ -408,7 +410,9 @@ func aboveNullHeadline(s *Sensitivity) string {
 		case an.Defined >= 2 && an.SmallestExtent != an.LargestExtent:
 			sm, lg := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 			small, large := an.gapEnds()
-			part += "; the gap " + gapSpan("moves from", sm.Diff, an.SmallestExtent, small, lg.Diff, an.LargestExtent, large)
+			// "the gap" left its sign to guess (null minus model reads as
+			// naturally); the names say which side is subtracted.
+			part += fmt.Sprintf("; %s minus %s ", an.Model, an.Null) + gapSpan("moves from", sm.Diff, an.SmallestExtent, small, lg.Diff, an.LargestExtent, large)
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {

@@ -169,7 +169,9 @@ func decompositionSentence(m MetricInfo, d *Decomposition) string {
 	if d.KendallWDefined {
 		s += fmt.Sprintf(" Kendall's W = %s (a description of agreement, no test): ", f3(d.KendallW))
 		if len(d.DiffersFromBase) == 0 {
-			s += fmt.Sprintf("every extent orders the models as %s does.", d.BaseExtent)
+			// Of the point estimates: two models within noise on every
+			// extent can still have W = 1.
+			s += fmt.Sprintf("every extent orders the models' point estimates as %s does; see the paired model differences for whether that order is beyond noise.", d.BaseExtent)
 		} else {
 			s += fmt.Sprintf("the order of the point estimates differs from %s on %s; see the paired model differences for whether that is beyond noise.", d.BaseExtent, strings.Join(d.DiffersFromBase, ", "))
 		}

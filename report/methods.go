@@ -156,12 +156,16 @@ func allOf(n int) string {
 
 // methodsScores writes what was computed on each extent: the AUC, the
 // partial ROC ratio, the omission rates, the predicted area and the
-// Boyce index, with their settings.
+// Boyce index, with their settings. Each score, and the binomial test's
+// null, is defined in the sentence itself as its paper does (E as the
+// omission allowed, the ratio against the random line, the Boyce index as
+// a Spearman correlation over a moving window), so that the text stands
+// without the report's Terms.
 func methodsScores(b *strings.Builder, r *Results) {
 	st := r.Settings
 	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008) at E = %s, with x_E interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resample%s of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008: the area under the ROC curve where at most a share E of the test records is omitted, over the area under the random line there; 1 is random) at E = %s, with x_E, the share of the area where the curve reaches 1 − E, interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resample%s of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, Plural(st.Iterations), fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
 		case fewPts && fewB:
@@ -177,11 +181,11 @@ func methodsScores(b *strings.Builder, r *Results) {
 	if len(st.FixedThresholds) > 0 {
 		fmt.Fprintf(b, " and at fixed threshold%s %s", Plural(len(st.FixedThresholds)), fmtList(st.FixedThresholds, ""))
 	}
-	b.WriteString(" with a one-sided binomial test (Anderson et al. 2003)")
+	b.WriteString(" with a one-sided binomial test of the test records at or above the threshold against the share of the extent's area at or above it (Anderson et al. 2003)")
 	// The predicted area is judged like the other scores: say what it is.
 	b.WriteString("; the predicted area, the share of the extent's area at or above the minimum training presence")
 	if st.BoyceSteps > 0 {
-		fmt.Fprintf(b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006; moving window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
+		fmt.Fprintf(b, "; and the continuous Boyce index (Boyce et al. 2002; Hirzel et al. 2006: the Spearman rank correlation between a moving window's model value and its ratio of the share of test records to the share of area in it; window of %s of the value range, %d steps), with the area in each window read from a 4096-bin histogram on the extent's own value range (equal bins of a power-of-two width, at least 2048 across the range), each bin's area taken as spread evenly over the bin except the area exactly at each presence value and fixed threshold, counted wholly in the windows that hold the value", fmtG(st.BoyceWindow), st.BoyceSteps)
 		for _, m := range r.Models {
 			if m.NullKind == NullDistance {
 				b.WriteString("; for the distance-only null the bins are never narrower than the power of two at or below 1/4096 of an upper bound on its largest distance, so that its bins are known before its cells are computed, and a narrow extent has fewer of them")
@@ -788,6 +792,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	n := len(s.ScoredExtents)
 	var robust, sensitive, sensitiveAll, undetermined []string
+	omissionRobust := false // an omission rate is robust by construction
 	for _, v := range s.Verdicts {
 		if v.Metric == MetricKeyBoyce {
 			continue // described, not judged: said with the tolerances
@@ -801,6 +806,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		switch {
 		case v.Verdict == JudgementRobust:
 			robust = append(robust, label)
+			omissionRobust = omissionRobust || strings.HasPrefix(v.Metric, "omission_")
 		case v.Verdict == JudgementSensitive && s.sensitiveForEvery(v.Metric):
 			sensitiveAll = append(sensitiveAll, label)
 		case v.Verdict == JudgementSensitive:
@@ -830,7 +836,12 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
 	}
 	if len(robust) > 0 {
-		fmt.Fprintf(b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
+		fmt.Fprintf(b, "%s stayed within the tolerance %s", upperFirst(joinList(robust)), every)
+		if omissionRobust {
+			// Reads as a finding otherwise: say that it cannot fail.
+			b.WriteString(" (an omission rate by construction: its threshold comes from the training records, so on the test records two extents share it omits the same ones)")
+		}
+		b.WriteString(". ")
 	}
 	if len(undetermined) > 0 {
 		// Undetermined: an interval straddles the tolerance, or a score

@@ -238,5 +238,9 @@ const nullsInMetricsCaptionMany = "Nulls: grey open markers on dotted lines (cir
 // nullGapBarsCaption reads the model-minus-null figure's bars both ways
 // (a bar wholly below 0 is as much a finding as one above) and says that
 // the pairs are drawn a few percent apart along the area axis.
-const nullGapBarsCaption = "Bars wholly above 0: the model beats the null on that extent; wholly below 0: the null beats the model; " +
-	"across 0: no difference beyond noise. The points of each model and null pair are shifted a few percent apart along the area axis so that their bars do not overlap."
+//
+// A bar across 0 is "within noise", not "no difference": a wide interval
+// over 0 does not show the model and the null equal. Each bar is a test
+// of its own extent, so the caption says they are not adjusted.
+const nullGapBarsCaption = "Bars wholly above 0: the model is above the null beyond noise on that extent; wholly below 0: below it; " +
+	"across 0: within noise, which does not show the two equal. Each bar is a test on its own extent, not adjusted for the number of extents. The points of each model and null pair are shifted a few percent apart along the area axis so that their bars do not overlap."

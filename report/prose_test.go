@@ -930,10 +930,10 @@ func TestTinyNullGapNotPrintedAsZero(t *testing.T) {
 		}}
 	head := aboveNullHeadline(&Sensitivity{AboveNull: []AboveNull{an}})
 	checkWords(t, "headline", head, []string{"R is not above distance_null beyond noise on base (AUC difference -0.0001, 95% interval -0.0002 to +0.00003)",
-		"the gap moves from +0.00004 on hull (the smallest extent) to -0.0001 on base (the largest)"}, []string{"+0.000 "})
+		"R minus distance_null moves from +0.00004 on hull (the smallest extent) to -0.0001 on base (the largest)"}, []string{"+0.000 "})
 	got := aboveNullSentence(&Results{}, MetricInfo{Key: "auc", Label: "AUC", Kind: MetricAUC}, &an)
 	checkWords(t, "sentence", got, []string{"the difference -0.0001 (0.859 against 0.859) has a 95% interval -0.0002 to +0.00003 that includes 0",
-		"the gap runs from +0.00004 on hull"}, []string{"+0.000 "})
+		"the difference (model minus null) runs from +0.00004 on hull"}, []string{"+0.000 "})
 }
 
 // TestTermsNameWhatThePageHolds: the Terms section names the spatial

@@ -244,7 +244,7 @@ func TestMethodsText(t *testing.T) {
 		"AUC of good ranged " + f3(auc.Min) + "–" + f3(auc.Max),
 		"evaluation aids", "evaluation extents",
 		"Hanley & McNeil 1982", "Anderson et al. 2003", "DeLong et al. (1988)", "Hirzel et al. 2006", "Peterson et al. 2008",
-		"presences' own cells are part of that background", "x_E interpolated linearly", "4096-bin histogram",
+		"presences' own cells are part of that background", "x_E, the share of the area where the curve reaches 1 − E, interpolated linearly", "4096-bin histogram",
 		strconv.Itoa(r.Settings.PairedResamples) + " full-size resamples", "AUC ±0.02", "differ in their test records",
 	}
 	for _, w := range want {

@@ -188,6 +188,25 @@
 #     10,842, which an independent count with pyproj Geod to the boundary
 #     cut every 0.0002 degrees confirms), its scores and what derives from
 #     them moved; every other extent is unchanged.
+#   - rewritten on branch h7 of 2026-12-05 (the model-minus-null sentences
+#     name the sign of the difference: the headline's "the gap moves from"
+#     reads "good minus distance_null moves from", and each above-null
+#     sentence's "the gap runs from" reads "the difference (model minus
+#     null) runs from": sentences under sensitivity only, every number
+#     and scores.csv unchanged).
+#   - rewritten again on branch h7 (a comparison of two models' omission
+#     rates says which "omits fewer test points" instead of "is better":
+#     the demo's "coarse is better than good beyond noise on 12 of 13
+#     extents" at the 10th percentile; that sentence of results.json only,
+#     every number and scores.csv unchanged).
+#   - rewritten a third time on branch h7 (an omission rate's robust
+#     verdict, whose paired differences are 0 by construction, says so
+#     after "every one is 0": those verdict sentences of results.json only,
+#     every number and scores.csv unchanged).
+#   - rewritten a fourth time on branch h7 (a decomposition's Kendall's W
+#     of 1 says the extents order the models' point estimates as base
+#     does and points to the paired differences: those sentences of
+#     results.json only, every number and scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
