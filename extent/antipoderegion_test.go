@@ -15,11 +15,7 @@ import (
 // but not around that point, is still read (and covers no cell).
 func TestAntipodeRegionOnProjectedGrid(t *testing.T) {
 	dir := t.TempDir()
-	g, err := NewGrid(100, 100, [6]float64{3821000, 10000, 0, 3710000, 0, -10000}, "EPSG:3035")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer g.Close()
+	g := europeGrid(t)
 	anti := filepath.Join(dir, "anti.gpkg")
 	writePolygonGPKG(t, anti, 4326, [][2]float64{{-175, -55}, {-165, -55}, {-165, -45}, {-175, -45}, {-175, -55}})
 	if _, _, err := ReadShape(anti, g); err == nil || !strings.Contains(err.Error(), "lies away from the raster's centre cell in its own CRS but holds it once projected") {
@@ -46,11 +42,7 @@ func TestAntipodeRegionOnProjectedGrid(t *testing.T) {
 // before.
 func TestAntipodeUnitLeftOut(t *testing.T) {
 	dir := t.TempDir()
-	g, err := NewGrid(100, 100, [6]float64{3821000, 10000, 0, 3710000, 0, -10000}, "EPSG:3035")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer g.Close()
+	g := europeGrid(t)
 	path := writeGeoJSON(t, dir, "units.geojson", []string{"far", "europe"}, [][][2]float64{
 		{{-175, -55}, {-165, -55}, {-165, -45}, {-175, -45}, {-175, -55}},
 		{{5, 48}, {15, 48}, {15, 56}, {5, 56}, {5, 48}},
@@ -70,4 +62,16 @@ func TestAntipodeUnitLeftOut(t *testing.T) {
 	if n == 0 || n == 100*100 {
 		t.Errorf("europe covers %d of the raster's 10000 cells: want some, not all", n)
 	}
+}
+
+// europeGrid is a 100 x 100 grid of 10 km cells in EPSG:3035 (LAEA
+// Europe) around the projection's centre, 10E 52N.
+func europeGrid(t *testing.T) *Grid {
+	t.Helper()
+	g, err := NewGrid(100, 100, [6]float64{3821000, 10000, 0, 3710000, 0, -10000}, "EPSG:3035")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(g.Close)
+	return g
 }
