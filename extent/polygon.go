@@ -25,7 +25,7 @@ import (
 )
 
 // ErrNoOverlap is returned when a polygon layer covers no cell of the grid.
-var ErrNoOverlap = errors.New("extent: region does not overlap the raster")
+var ErrNoOverlap = errors.New("extent: region covers no cell of the raster")
 
 // Shape is a polygon area read from a vector layer and put in the grid's
 // CRS (Grid) and in WGS84 longitude/latitude (LonLat), both as orb values.

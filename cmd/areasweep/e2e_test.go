@@ -412,7 +412,7 @@ func TestRunErrors(t *testing.T) {
 		{"bad number", []string{"run", "--model", "m=" + s.model, "--occurrences", badNum, "--region", s.region}, "line 3"},
 		{"latitude out of range", []string{"run", "--model", "m=" + s.model, "--occurrences", badLat, "--region", s.region}, "95"},
 		{"swapped columns", []string{"run", "--model", "m=" + s.model, "--occurrences", swapped, "--region", s.region}, "swapped"},
-		{"region not overlapping", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.far}, "does not overlap"},
+		{"region not overlapping", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.far}, "region covers no cell of the raster: "},
 		{"E outside (0,1)", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--e", "1.5"}, "outside (0,1)"},
 		{"iterations < 1", []string{"run", "--model", "m=" + s.model, "--occurrences", s.occ, "--region", s.region, "--iterations", "0"}, "--iterations is 0; it must be between 1"},
 		{"out is a file", base(notADir), "not a directory"},
