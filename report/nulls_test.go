@@ -114,14 +114,7 @@ func TestExplorerListsNulls(t *testing.T) {
 	if err := Analyze(r); err != nil {
 		t.Fatal(err)
 	}
-	b, err := teachData(r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	var pl teachPayload
-	if err := json.Unmarshal(b, &pl); err != nil {
-		t.Fatal(err)
-	}
+	pl := explorerPayload(t, r)
 	want := append(append([]string{}, r.Sensitivity.ModelNames...), DistanceNullName)
 	if !reflect.DeepEqual(pl.Models, want) {
 		t.Fatalf("explorer lists %q, want the models then the null: %q", pl.Models, want)
@@ -146,4 +139,18 @@ func TestExplorerListsNulls(t *testing.T) {
 	if scored == 0 {
 		t.Error("the null has no scored cell in the explorer")
 	}
+}
+
+// explorerPayload is the explorer's data for r (teachData), decoded.
+func explorerPayload(t *testing.T, r *Results) teachPayload {
+	t.Helper()
+	b, err := teachData(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var pl teachPayload
+	if err := json.Unmarshal(b, &pl); err != nil {
+		t.Fatal(err)
+	}
+	return pl
 }

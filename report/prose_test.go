@@ -1,7 +1,6 @@
 package report
 
 import (
-	"encoding/json"
 	"fmt"
 	"strconv"
 	"strings"
@@ -1007,15 +1006,7 @@ func TestMapCaptionPanelsLeft(t *testing.T) {
 func TestExplorerOpensOnTheReference(t *testing.T) {
 	open := func(r *Results) string {
 		t.Helper()
-		b, err := teachData(r)
-		if err != nil {
-			t.Fatal(err)
-		}
-		var pl teachPayload
-		if err := json.Unmarshal(b, &pl); err != nil {
-			t.Fatal(err)
-		}
-		return pl.Default
+		return explorerPayload(t, r).Default
 	}
 	r := analyzedSample(t)
 	if got := open(r); got != vocab.BaseID {
