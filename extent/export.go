@@ -103,6 +103,15 @@ func (g *Grid) GeoTIFFHoldsCRS() bool {
 	return err == nil && wkt != ""
 }
 
+// membershipTIFFOptions are extents.tif's GeoTIFF creation options.
+// BIGTIFF=IF_SAFER makes a BigTIFF (64-bit offsets) whenever the bands
+// uncompressed exceed about 2 GB: GDAL's default (IF_NEEDED) never does
+// for a compressed file, and a classic TIFF, whose offsets are 32-bit,
+// fails once its compressed bands pass 4 GB, at the end of a long run (a
+// billion-cell grid with tens of extents). Smaller files stay classic
+// TIFFs, byte for byte as before.
+var membershipTIFFOptions = []string{"COMPRESS=DEFLATE", "TILED=YES", "INTERLEAVE=BAND", "BIGTIFF=IF_SAFER"}
+
 // WriteMembershipTIFF writes a GeoTIFF at path with one Byte band per member
 // (1 inside, 0 outside; band description = member id), deflate-compressed,
 // each band in its own tiles: written band by band into pixel-interleaved
@@ -114,7 +123,7 @@ func (f *Family) WriteMembershipTIFF(path string) error {
 	Register()
 	g := f.Grid
 	ds, err := godal.Create(godal.GTiff, path, len(f.Members), godal.Byte, g.Width, g.Height,
-		godal.CreationOption("COMPRESS=DEFLATE", "TILED=YES", "INTERLEAVE=BAND"))
+		godal.CreationOption(membershipTIFFOptions...))
 	if err != nil {
 		return fmt.Errorf("extent: create %s: %w", path, err)
 	}

@@ -1,6 +1,8 @@
 package extent
 
 import (
+	"io"
+	"os"
 	"path/filepath"
 	"testing"
 
@@ -81,5 +83,48 @@ func TestMembershipTIFFBandInterleaved(t *testing.T) {
 	defer ds.Close()
 	if got := ds.Metadata("INTERLEAVE", godal.Domain("IMAGE_STRUCTURE")); got != "BAND" {
 		t.Errorf("extents.tif INTERLEAVE = %q, want BAND", got)
+	}
+}
+
+// TestMembershipTIFFBigTIFF: extents.tif's creation options give a BigTIFF
+// (header "II+", 64-bit offsets) for bands of more than 4 GiB
+// uncompressed, where a classic TIFF's 32-bit offsets could overflow once
+// written, and a classic TIFF ("II*") for a small one, as before. The
+// headers are the TIFF 6.0 and BigTIFF magic numbers (from memory). The
+// large file is created without writing a block (GDAL keeps it sparse).
+func TestMembershipTIFFBigTIFF(t *testing.T) {
+	Register()
+	dir := t.TempDir()
+	for _, c := range []struct {
+		name         string
+		bands, width int
+		height       int
+		want         string
+	}{
+		{"small.tif", 3, 100, 100, "II*\x00"},
+		{"large.tif", 60, 40000, 2000, "II+\x00"}, // 4.8e9 bytes uncompressed
+	} {
+		path := filepath.Join(dir, c.name)
+		ds, err := godal.Create(godal.GTiff, path, c.bands, godal.Byte, c.width, c.height,
+			godal.CreationOption(append(membershipTIFFOptions, "SPARSE_OK=TRUE")...))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Close(); err != nil {
+			t.Fatal(err)
+		}
+		head := make([]byte, 4)
+		f, err := os.Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, err = io.ReadFull(f, head)
+		f.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if string(head) != c.want {
+			t.Errorf("%s (%d bands of %d x %d): header %q, want %q", c.name, c.bands, c.width, c.height, head, c.want)
+		}
 	}
 }
