@@ -4,6 +4,8 @@ import (
 	"io"
 	"path/filepath"
 	"strconv"
+
+	"areasweep/cmd/internal/outdir"
 )
 
 // Options are the batch's settings, as the command's flags give them.
@@ -65,7 +67,7 @@ type IO struct {
 // failure records, the SLURM plan); ids cannot start with a dot, so it
 // never clashes with a study. Its presence also marks --out as a batch's
 // folder.
-const OwnDir = ".areasweep-batch"
+const OwnDir = outdir.BatchOwnDir
 
 // shardDir is the folder of shard i of study id: inside the batch's own
 // folder, so that the study folder (the merge's --out) holds no input.

@@ -97,3 +97,42 @@ func TestOpenInputNamedByLinkInOut(t *testing.T) {
 		}
 	}
 }
+
+// TestBatchFolderRefused: a batch's --out (it holds BatchOwnDir) is
+// refused as the --out of one run, extents, shard, merge or demo, with
+// --force or not (a run --force wrote its results among the batch's
+// study folders and summary), naming the marker folder, and nothing in
+// it changes.
+func TestBatchFolderRefused(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "batch")
+	os.MkdirAll(filepath.Join(out, BatchOwnDir), 0o755)
+	os.MkdirAll(filepath.Join(out, "sp1"), 0o755)
+	os.WriteFile(filepath.Join(out, "summary.csv"), []byte("id\n"), 0o644)
+	before, _ := os.ReadDir(out)
+	opens := map[string]func() (*Dir, error){
+		"run":          func() (*Dir, error) { return Open(out, false, nil) },
+		"run --force":  func() (*Dir, error) { return Open(out, true, nil) },
+		"shard":        func() (*Dir, error) { return OpenShard(out, true, nil) },
+		"demo --force": func() (*Dir, error) { return OpenDemo(out, true, []string{"study.yaml"}) },
+		"merge --force": func() (*Dir, error) {
+			return nil, Check(out, true, nil, false)
+		},
+	}
+	for name, open := range opens {
+		d, err := open()
+		if err == nil {
+			if d != nil {
+				d.Abort()
+			}
+			t.Errorf("%s: accepted", name)
+			continue
+		}
+		if !fault.IsBadInput(err) || !strings.Contains(err.Error(), "is a batch's folder (it holds "+filepath.Join(out, BatchOwnDir)) {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	after, _ := os.ReadDir(out)
+	if len(after) != len(before) {
+		t.Errorf("entries %v, want %v", after, before)
+	}
+}

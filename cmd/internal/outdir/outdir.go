@@ -225,6 +225,18 @@ func (e *NotEmptyError) Error() string {
 	return fmt.Sprintf("--out %s exists and is not empty; add --force to replace areasweep's files in it, or choose another directory", e.Out)
 }
 
+// BatchOwnDir is the folder of a batch's own files inside the batch's
+// --out (batchrun.OwnDir); its presence marks the folder as a batch's.
+const BatchOwnDir = ".areasweep-batch"
+
+// batchFolderError refuses a batch's --out as the --out of one run
+// (run, extents, a shard, merge, the demo), --force or not: the run's
+// files would lie among the batch's study folders and summary, and
+// --force would replace the run's entries there as its own.
+func batchFolderError(out string) error {
+	return fmt.Errorf("--out %s is a batch's folder (it holds %s, the batch's summary and a folder per study); one run's results would be mixed among them: choose another --out, e.g. %s", out, filepath.Join(filepath.Clean(out), BatchOwnDir), filepath.Clean(out)+"-run")
+}
+
 // InUseError is the refusal of an --out another run holds (its lock):
 // nothing about the inputs or settings is wrong, the run can only wait
 // (a batch names no table row for it).
@@ -339,6 +351,9 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs []stri
 		entries, err := os.ReadDir(d.abs)
 		if err != nil {
 			return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be read: %w", out, err))
+		}
+		if st, err := os.Lstat(filepath.Join(d.abs, BatchOwnDir)); err == nil && st.IsDir() {
+			return nil, false, fault.BadInput(batchFolderError(out))
 		}
 		if len(visible(entries)) > 0 && !force {
 			return nil, false, fault.BadInput(&NotEmptyError{Out: out})
