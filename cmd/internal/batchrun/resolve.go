@@ -261,7 +261,8 @@ func missingInput(o *pipeline.Options) (string, error) {
 type columnPath struct{ col, path string }
 
 // inputColumns lists the input files of o, each with its column: models,
-// nulls and extra layers, then occurrences, region and ecoregions.
+// nulls and extra layers, then occurrences, the file --occurrences-crs
+// names (when it names one), region and ecoregions.
 func inputColumns(o *pipeline.Options) []columnPath {
 	var out []columnPath
 	for _, l := range []struct {
@@ -273,7 +274,7 @@ func inputColumns(o *pipeline.Options) []columnPath {
 			out = append(out, columnPath{l.col, path})
 		}
 	}
-	for _, p := range []columnPath{{"occurrences", o.Occurrences}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
+	for _, p := range []columnPath{{"occurrences", o.Occurrences}, {"occurrences-crs", o.CRSFile()}, {"region", o.Region}, {"ecoregions", o.Ecoregions}} {
 		if p.path != "" {
 			out = append(out, p)
 		}

@@ -95,18 +95,25 @@ func TestInputInsideOutRefused(t *testing.T) {
 		t.Fatal(err)
 	}
 	table := filepath.Join(s.Dir, "inside.csv")
-	body := "# iterations: 30\nid,model,occurrences,region,extra\n" +
-		"alpha,m=model.tif,occ.csv,region.geojson,\n" +
-		"other,m=model.tif,occ.csv,runs/alpha/extents.gpkg,\n" +
-		"own,m=runs/.areasweep-batch/m.tif,occ.csv,region.geojson,\n" +
-		"beside,m=model.tif,runs/occ.csv,region.geojson,\n" +
-		"linked,m=model.tif,occ.csv,region.geojson,x=link/alpha/extents.gpkg\n" +
-		"near,m=model.tif,occ.csv,region.geojson,x=runs2/a.gpkg\n"
+	// A .prj named by occurrences-crs is an input too (it was not
+	// checked): one in a study's folder.
+	if err := os.WriteFile(filepath.Join(out, "alpha", "occ.prj"), []byte(`GEOGCS["WGS 84"]`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	body := "# iterations: 30\nid,model,occurrences,region,extra,occurrences-crs\n" +
+		"alpha,m=model.tif,occ.csv,region.geojson,,\n" +
+		"other,m=model.tif,occ.csv,runs/alpha/extents.gpkg,,\n" +
+		"own,m=runs/.areasweep-batch/m.tif,occ.csv,region.geojson,,\n" +
+		"beside,m=model.tif,runs/occ.csv,region.geojson,,\n" +
+		"linked,m=model.tif,occ.csv,region.geojson,x=link/alpha/extents.gpkg,\n" +
+		"near,m=model.tif,occ.csv,region.geojson,x=runs2/a.gpkg,\n" +
+		"crs,m=model.tif,occ.csv,region.geojson,,runs/alpha/occ.prj\n" +
+		"code,m=model.tif,occ.csv,region.geojson,,EPSG:4326\n"
 	if err := os.WriteFile(table, []byte(body), 0o666); err != nil {
 		t.Fatal(err)
 	}
 	got, err := resolveProblems(t, &Options{Table: table, Out: out})
-	if want := "other/region own/model beside/occurrences linked/extra"; strings.Join(got, " ") != want {
+	if want := "other/region own/model beside/occurrences linked/extra crs/occurrences-crs"; strings.Join(got, " ") != want {
 		t.Errorf("problems %v, want %s\n%v", got, want, err)
 	}
 	for _, want := range []string{

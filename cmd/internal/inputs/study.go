@@ -22,11 +22,12 @@ import (
 // Study holds the settings a study file gives, by key (the long flag
 // names of the command, settings.Table): a key that is absent was not in
 // the file, and an empty list was given as an empty list. Values have the
-// Go type of their settings.Kind: string (Text, Path), []string
+// Go type of their settings.Kind: string (Text, Path, CRS), []string
 // (NamedPaths, "NAME=PATH"), bool, int, uint64, float64 or []float64.
 //
-// Paths (Path and the PATH part of NamedPaths) are already resolved
-// against the study file's directory.
+// Paths (Path, the PATH part of NamedPaths, and a CRS naming a file
+// beside the study file) are already resolved against the study file's
+// directory.
 type Study map[string]any
 
 // studyKeys lists the accepted keys in table order.
@@ -338,6 +339,8 @@ func (s *Study) set(key string, v *yaml.Node, dir string) error {
 		val, err = value(stringValue(key, v))
 	case settings.Path:
 		val, err = value(pathValue(key, v, dir))
+	case settings.CRS:
+		val, err = value(crsValue(key, v, dir))
 	case settings.NamedPaths:
 		val, err = namedPaths(key, v, dir)
 	case settings.Bool:
@@ -421,6 +424,28 @@ func pathValue(key string, v *yaml.Node, dir string) (*string, error) {
 		return nil, err
 	}
 	return &p, nil
+}
+
+// crsValue is a CRS as the study file writes it: a relative value that
+// names a regular file in dir (a .prj or WKT file beside the study file)
+// is resolved against dir like any path of the file; an authority code,
+// a WKT or PROJ string, or a path that is absolute or names no file
+// there is kept as written. Relative to the working folder instead, a
+// .prj beside the study file was read as a CRS name that PROJ does not
+// know.
+func crsValue(key string, v *yaml.Node, dir string) (*string, error) {
+	s, err := stringValue(key, v)
+	if err != nil || dir == "" || *s == "" || filepath.IsAbs(*s) {
+		return s, err
+	}
+	p, perr := resolvePath(dir, *s)
+	if perr != nil {
+		return s, nil // not a path areasweep can resolve: a CRS text
+	}
+	if st, err := os.Stat(p); err == nil && st.Mode().IsRegular() {
+		return &p, nil
+	}
+	return s, nil
 }
 
 // resolvePath joins a relative path to dir. A path starting with ~/ is

@@ -751,3 +751,38 @@ func TestClosest(t *testing.T) {
 		}
 	}
 }
+
+// TestLoadStudyCRSFileBesideIt: occurrences-crs naming a .prj beside the
+// study file is resolved against the study file's folder, like its other
+// paths (it was kept relative to the working folder, and the run said
+// `"occ.prj" is not a CRS PROJ knows`); an authority code, a WKT string,
+// and a relative name that is no file there stay as written.
+func TestLoadStudyCRSFileBesideIt(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "occ.prj"), []byte(`GEOGCS["WGS 84"]`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Mkdir(filepath.Join(dir, "folder.prj"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ value, want string }{
+		{"occ.prj", filepath.Join(dir, "occ.prj")},
+		{"./occ.prj", filepath.Join(dir, "occ.prj")},
+		{"EPSG:3035", "EPSG:3035"},
+		{`'PROJCS["x"]'`, `PROJCS["x"]`},
+		{"missing.prj", "missing.prj"},
+		{"folder.prj", "folder.prj"},
+	} {
+		path := filepath.Join(dir, "study.yaml")
+		if err := os.WriteFile(path, []byte("occurrences-crs: "+c.value+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		st, err := LoadStudy(path)
+		if err != nil {
+			t.Fatalf("%s: %v", c.value, err)
+		}
+		if got := (*st)["occurrences-crs"]; got != c.want {
+			t.Errorf("occurrences-crs: %s read as %q, want %q", c.value, got, c.want)
+		}
+	}
+}

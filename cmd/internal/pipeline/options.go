@@ -48,7 +48,7 @@ type Options struct {
 // InputPaths lists every input file, for the check that --out holds none.
 func (o *Options) InputPaths() []string {
 	p := []string{o.Occurrences, o.Region, o.Ecoregions}
-	if crs := o.crsFile(); crs != "" {
+	if crs := o.CRSFile(); crs != "" {
 		p = append(p, crs)
 	}
 	for _, m := range append(append(append([]string{}, o.Models...), o.Nulls...), o.Extra...) {
@@ -59,11 +59,11 @@ func (o *Options) InputPaths() []string {
 	return p
 }
 
-// crsFile returns --occurrences-crs when it names a file (a .prj or WKT
+// CRSFile returns --occurrences-crs when it names a file (a .prj or WKT
 // file, which GDAL reads for the CRS), "" otherwise (an authority code,
 // a WKT or PROJ string): such a file is an input like the others, its
 // SHA-256 recorded and rechecked.
-func (o *Options) crsFile() string {
+func (o *Options) CRSFile() string {
 	if !namesFile(o.OccurrencesCRS) {
 		return ""
 	}

@@ -1215,7 +1215,7 @@ func (s *Study) inputFiles() []inputFile {
 		ins = append(ins, inputFile{role, m.Path, inputs.RasterSidecars})
 	}
 	ins = append(ins, inputFile{"occurrences", o.Occurrences, -1})
-	if crs := o.crsFile(); crs != "" {
+	if crs := o.CRSFile(); crs != "" {
 		ins = append(ins, inputFile{"occurrences-crs", crs, -1})
 	}
 	ins = append(ins, inputFile{"region", o.Region, inputs.VectorSidecars})

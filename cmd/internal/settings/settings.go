@@ -41,6 +41,12 @@ const (
 	// FloatList is a list of finite numbers ([]float64), comma-separated on
 	// the command line.
 	FloatList
+	// CRS is a string: an authority code, WKT or PROJ string, or the path
+	// of a file holding the CRS (a .prj or WKT file). A study file's
+	// relative value that names a file beside the study file is resolved
+	// against the study file's folder, as a Path is; any other value is
+	// kept as written.
+	CRS
 )
 
 // Setting is one row of the table.
@@ -151,7 +157,7 @@ var Table = []Setting{
 	{Name: "occurrences", Kind: Path, Arg: "FILE", Study: true,
 		Usage: "CSV `FILE` of occurrences: longitude, latitude and role (train/test) columns",
 		Field: func(v *Values) any { return &v.Occurrences }},
-	{Name: "occurrences-crs", Kind: Text, Arg: "CRS", Study: true, Unset: "WGS84 lon/lat",
+	{Name: "occurrences-crs", Kind: CRS, Arg: "CRS", Study: true, Unset: "WGS84 lon/lat",
 		Usage: "`CRS` of the occurrence coordinates, e.g. EPSG:3035 (default WGS84 lon/lat)",
 		Field: func(v *Values) any { return &v.OccurrencesCRS }},
 	{Name: "region", Kind: Path, Arg: "FILE", Study: true,

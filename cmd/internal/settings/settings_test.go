@@ -13,7 +13,7 @@ import (
 // cannot write one field).
 func TestTable(t *testing.T) {
 	goType := map[Kind]reflect.Type{
-		Text: reflect.TypeOf(""), Path: reflect.TypeOf(""), NamedPaths: reflect.TypeOf([]string(nil)),
+		Text: reflect.TypeOf(""), Path: reflect.TypeOf(""), CRS: reflect.TypeOf(""), NamedPaths: reflect.TypeOf([]string(nil)),
 		Bool: reflect.TypeOf(false), Int: reflect.TypeOf(0), Uint: reflect.TypeOf(uint64(0)),
 		Float: reflect.TypeOf(0.0), FloatList: reflect.TypeOf([]float64(nil)),
 	}
