@@ -50,7 +50,18 @@ type Accumulator struct {
 	skipped  int64
 	// bounded is true when min and max are only bounds (see Sub).
 	bounded bool
+	// values are the model's distinct values when it has few of them
+	// (SetModelValues; nil when unknown), read by the Boyce index only.
+	values []float64
 }
+
+// SetModelValues gives the accumulator the distinct values of its model's
+// cells (ValueSet.Values: ascending, finite, every value a cell of this
+// accumulator can hold among them). The Boyce index then counts the area
+// of a histogram bin that holds a single such value, besides the layout's
+// values, at that value instead of spreading it over the bin. A ring made
+// by Sub, and a Clone, keep them. vals is not copied: do not change it.
+func (a *Accumulator) SetModelValues(vals []float64) { a.values = vals }
 
 // NewAccumulator returns an empty accumulator on layout l.
 func (l *Layout) NewAccumulator() *Accumulator {

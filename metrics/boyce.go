@@ -94,6 +94,16 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 	}
 	total := float64(a.area)
 	spread, pv, pcum := a.pointMasses(i0, nb)
+	// A bin whose spread area can lie at one value only (the model's
+	// value set holds one value in it besides the layout's) holds it as
+	// a point mass there.
+	if point, one := a.binPoints(i0, nb); point != nil {
+		for k := range nb {
+			if one[k] && spread[k] > 0 {
+				e0[k], e1[k] = point[k], point[k]
+			}
+		}
+	}
 	// whole[k] is bin k's term when a window holds all of its interval
 	// (ov below is then e1[k] - e0[k], the same operands): computed once
 	// per bin instead of once per window holding it (about ten).

@@ -651,7 +651,7 @@ def thresholds(bg, w, test, train_all, fixed):
     return out
 
 
-def boyce(bg, w, test, layout, width=0.1, steps=100):
+def boyce(bg, w, test, layout, distinct=None, width=0.1, steps=100):
     """Continuous Boyce index (Hirzel et al. 2006) with exact window areas:
     windows of width 0.1 (max - min) in 100 equal steps, both ends
     inclusive, the last one ending at max; P = share of test presences and
@@ -668,16 +668,21 @@ def boyce(bg, w, test, layout, width=0.1, steps=100):
     out): e_lo and e_hi below, with delta = (max - min)/2047. The area at
     each layout value (the model's values at every scored presence, and the
     fixed thresholds) is exact (README), so when every value of the cells
-    is a layout value ("exact") E and the index are exact too."""
+    is a layout value ("exact") E and the index are exact too; so they are
+    for a model of at most 4096 values whose gaps all exceed delta (no bin
+    holds two: areasweep places each bin's area at the one value it
+    holds)."""
     mn, mx = bg.min(), bg.max()
     span = mx - mn
     wd = width * span
     step = (span - wd) / (steps - 1)
     delta = span / 2047
-    tot = w.sum()
+    # Correctly rounded sums (math.fsum): E does not depend on the order
+    # numpy adds the cells' areas in.
+    tot = math.fsum(w)
 
     def share(lo, hi):
-        return float(w[(bg >= lo) & (bg <= hi)].sum() / tot)
+        return float(math.fsum(w[(bg >= lo) & (bg <= hi)]) / tot)
 
     windows, mids, fs = [], [], []
     for i in range(steps):
@@ -685,7 +690,7 @@ def boyce(bg, w, test, layout, width=0.1, steps=100):
         hi = mx if i == steps - 1 else lo + wd
         e = share(lo, hi)
         p = float(np.sum((test >= lo) & (test <= hi)) / len(test))
-        windows.append((lo + wd / 2, p, share(lo + delta, hi - delta), share(lo - delta, hi + delta)))
+        windows.append((lo + wd / 2, p, share(lo + delta, hi - delta), share(lo - delta, hi + delta), lo, hi))
         if e > 1e-12:
             mids.append(lo + wd / 2)
             fs.append(p / e)
@@ -696,7 +701,24 @@ def boyce(bg, w, test, layout, width=0.1, steps=100):
            "p_count": [int(round(x[1] * len(test))) for x in windows],
            "e_lo": [float(f"{x[2]:.12g}") for x in windows], "e_hi": [float(f"{x[3]:.12g}") for x in windows]}
     out["defined"] = len(fs) >= 3 and len(set(fs)) >= 2
-    out["exact"] = bool(np.isin(np.unique(bg), layout).all())
+    # Exact also for a model of few values (at most 4096 distinct values
+    # on the cells of all extents, areasweep's value set) no two of which
+    # can share a bin of this extent's histogram: their gaps near the
+    # extent's range exceed the widest bin, delta (README: each bin
+    # holding one value besides the layout's has its area at that value).
+    u = np.unique(bg)
+    few = False
+    if distinct is not None and len(distinct) <= 4096:
+        near = distinct[(distinct >= mn - delta) & (distinct <= mx + delta)]
+        few = bool(len(near) < 2 or float(np.diff(near).min()) > delta)
+    out["exact"] = bool(np.isin(u, layout).all())
+    # With few values E is exact in every window, but the index is not
+    # bit for bit: ratios equal in exact arithmetic (on an equal-area grid,
+    # windows of as many cells and presences in proportion) may round one
+    # unit apart and rank as two values, not a tie. So the windows' E are
+    # checked exactly and the index within the general tolerance.
+    out["exact_windows"] = out["exact"] or few
+    out["e"] = [float(f"{share(x[4], x[5]):.12g}") for x in windows]
     if out["defined"]:
         out["index"] = float(spearmanr(fs, mids).statistic)
     return out
@@ -907,7 +929,13 @@ def study(spec):
 
     scores = []
     models = [(m["name"], v) for m, v in zip(spec["models"], vals)] + [("distance_null", null)]
+    in_any = np.zeros(len(area), dtype=bool)
+    for _, mask, _ in extents:
+        in_any |= mask
     for name, v in models:
+        # The distinct values on the cells of all extents (areasweep's
+        # value set of the model).
+        distinct = np.unique(v[in_any & ~np.isnan(v)] + 0.0)
         train_all = np.array([v[c] for c in train_cells if not np.isnan(v[c])])
         layout = np.r_[train_all, [v[c] for c in test_cells if not np.isnan(v[c])], spec["thresholds"]]
         for eid, mask, amb in extents:
@@ -935,7 +963,7 @@ def study(spec):
             s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
             s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
             if name != "distance_null":
-                s["boyce"] = boyce(bg, wt, te, layout)
+                s["boyce"] = boyce(bg, wt, te, layout, distinct)
             scores.append(s)
 
     # Rings of the nested chains (README "rings[]"): consecutive ok members

@@ -656,6 +656,7 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 		if n == 0 {
 			continue
 		}
+		st.Values.AddRow(sv, sb)
 		if validRuns != nil {
 			*validRuns = appendValidRuns(*validRuns, from, sb, int32(x0+int(s.x0)))
 		}

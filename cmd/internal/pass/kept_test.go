@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -137,7 +138,7 @@ func sameShare(t *testing.T, name string, got, want scoredShare) {
 			t.Errorf("%s: member %d's accumulator differs", name, k)
 		}
 	}
-	if got.stats != want.stats {
+	if !reflect.DeepEqual(got.stats, want.stats) {
 		t.Errorf("%s: stats %+v, want %+v", name, got.stats, want.stats)
 	}
 	if !bytes.Equal(bitsOf(got.valid), bitsOf(want.valid)) {

@@ -606,6 +606,9 @@ type Stats struct {
 	// AnyValid is true when some cell of the raster, in an extent or not,
 	// has a value. (A Virtual source computes only cells in some extent.)
 	AnyValid bool
+	// Values are the distinct values on cells of any extent while they
+	// are few (metrics.ValueSet); a Virtual source gathers none.
+	Values metrics.ValueSet
 }
 
 // Merge adds to s the statistics of a pass over other cells (another
@@ -614,6 +617,9 @@ type Stats struct {
 func (s *Stats) Merge(o Stats) { s.merge(o) }
 
 func (s *Stats) merge(o Stats) {
+	values := s.Values
+	values.Merge(o.Values)
+	defer func() { s.Values = values }()
 	anyValid := s.AnyValid || o.AnyValid
 	s.AnyValid = anyValid
 	if o.Area == 0 {

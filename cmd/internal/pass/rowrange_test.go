@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"reflect"
 	"sync"
 	"testing"
 
@@ -132,7 +133,7 @@ func TestRowRangesAddUp(t *testing.T) {
 						t.Errorf("%s: member %d: merged accumulator differs from the whole pass", name, k)
 					}
 				}
-				if sum.stats != whole.stats {
+				if !reflect.DeepEqual(sum.stats, whole.stats) {
 					t.Errorf("%s: stats %+v, whole pass %+v", name, sum.stats, whole.stats)
 				}
 				if !bytes.Equal(bitsOf(sum.valid), bitsOf(whole.valid)) {

@@ -3,7 +3,10 @@ package pass
 import (
 	"bytes"
 	"fmt"
+	"maps"
 	"math"
+	"reflect"
+	"slices"
 	"testing"
 
 	"areasweep/extent"
@@ -192,6 +195,7 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 			}
 			// The statistics and the valid cells over the cells of any member.
 			var wantSt Stats
+			distinct := map[float64]bool{}
 			wantIn := make([]bool, g.Cells())
 			for r := first; r < end; r++ {
 				weights := rowWeights[r]
@@ -207,7 +211,14 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 					wantSt.AnyValid = true
 					wantIn[r*w+c] = true
 					wantSt.Merge(Stats{Min: v + 0, Max: v + 0, FloorArea: weights[c], Area: weights[c], AnyValid: true})
+					distinct[v+0] = true
 				}
+			}
+			// The value set: every distinct value (-0 as +0), ascending, or
+			// none past metrics.MaxSetValues.
+			wantVals := slices.Sorted(maps.Keys(distinct))
+			if len(wantVals) > metrics.MaxSetValues {
+				wantVals = nil
 			}
 			want := make([][]byte, len(fam.Members))
 			for k := range fam.Members {
@@ -232,7 +243,12 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 				if !bytes.Equal(bitsOf(valid), bitsOf(extent.NewValidFunc(g.Width, g.Height, func(i int) bool { return wantIn[i] }))) {
 					t.Errorf("family %s, rows %v, %d workers: valid cells differ", name, rr, workers)
 				}
-				if st != wantSt {
+				gotVals, few := st.Values.Values()
+				if few != (len(distinct) <= metrics.MaxSetValues) || !slices.Equal(gotVals, wantVals) {
+					t.Errorf("family %s, rows %v, %d workers: value set %v (kept %v), want %v", name, rr, workers, gotVals, few, wantVals)
+				}
+				st.Values = metrics.ValueSet{}
+				if !reflect.DeepEqual(st, wantSt) {
 					t.Errorf("family %s, rows %v, %d workers: statistics %+v, want %+v", name, rr, workers, st, wantSt)
 				}
 				for k, a := range accs {

@@ -54,6 +54,13 @@ func (s *Study) Pass(ctx context.Context, i int) error {
 	if err != nil {
 		return err
 	}
+	if vals, ok := sums.Stats.Values.Values(); ok && len(vals) > 0 && p.Model.NullKind != report.NullDistance {
+		// A raster of few values: its Boyce windows count each
+		// histogram bin holding one of them at that value.
+		for _, a := range sums.Accs {
+			a.SetModelValues(vals)
+		}
+	}
 	if !sums.Stats.AnyValid && p.Model.NullKind != report.NullDistance {
 		// Found by the pass itself (in a merge, by every shard's rows
 		// together): no read before the pass looks for it.

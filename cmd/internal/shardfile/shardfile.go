@@ -349,7 +349,7 @@ func decodePreview(b []byte, size int) ([]PreviewCell, error) {
 }
 
 // encodeStats writes Min and Max (float64 bits), FloorArea, Area and
-// AnyValid (uint64 0 or 1).
+// AnyValid (uint64 0 or 1), then the value set (metrics.ValueSet.Encode).
 func encodeStats(st pass.Stats) []byte {
 	b := binary.LittleEndian.AppendUint64(nil, math.Float64bits(st.Min))
 	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(st.Max))
@@ -359,15 +359,20 @@ func encodeStats(st pass.Stats) []byte {
 	if st.AnyValid {
 		flag = 1
 	}
-	return binary.LittleEndian.AppendUint64(b, flag)
+	b = binary.LittleEndian.AppendUint64(b, flag)
+	return append(b, st.Values.Encode()...)
 }
 
 func decodeStats(b []byte) (pass.Stats, error) {
-	if len(b) != 40 {
-		return pass.Stats{}, fmt.Errorf("%d bytes, want 40", len(b))
+	if len(b) < 40 {
+		return pass.Stats{}, fmt.Errorf("%d bytes, want at least 40", len(b))
+	}
+	values, err := metrics.DecodeValueSet(b[40:])
+	if err != nil {
+		return pass.Stats{}, err
 	}
 	st := pass.Stats{Min: math.Float64frombits(binary.LittleEndian.Uint64(b)), Max: math.Float64frombits(binary.LittleEndian.Uint64(b[8:])),
-		FloorArea: int64(binary.LittleEndian.Uint64(b[16:])), Area: int64(binary.LittleEndian.Uint64(b[24:]))}
+		FloorArea: int64(binary.LittleEndian.Uint64(b[16:])), Area: int64(binary.LittleEndian.Uint64(b[24:])), Values: values}
 	anyValid := binary.LittleEndian.Uint64(b[32:])
 	st.AnyValid = anyValid == 1
 	switch {

@@ -1,0 +1,161 @@
+package metrics
+
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+)
+
+// MaxSetValues is the most distinct values a ValueSet keeps; a model with
+// more is "many-valued" and its set is dropped. Our choice: the Boyce
+// histogram has 4096 bins, so a model with more values than that has bins
+// holding several values whatever the set says.
+const MaxSetValues = 4096
+
+// ValueSet gathers the distinct values of a model's cells while they are
+// few (at most MaxSetValues): a Byte raster, a model rounded to two
+// decimals, a model of a few classes. The Boyce index reads it to place
+// each histogram bin's area exactly at the one value the bin holds
+// (Accumulator.SetModelValues), where the histogram alone spreads it
+// over the bin.
+//
+// The set depends only on the cells added, not on their order or on how
+// they were split among workers or shards (Merge is a union), so a run's
+// results do not depend on either. The zero value is an empty set.
+type ValueSet struct {
+	vals []float64 // ascending, distinct, finite, -0 read as +0
+	many bool      // more than MaxSetValues: vals is nil
+}
+
+// AddRow adds the values of the cells i with bins[i] >= 0 (Layout.LocateRow:
+// cells with a value). A set that has passed MaxSetValues values costs a
+// single test per row.
+func (s *ValueSet) AddRow(vals []float64, bins []int32) {
+	if s.many {
+		return
+	}
+	last, have := 0.0, false
+	for i, v := range vals {
+		if bins[i] < 0 || (have && v == last) {
+			continue
+		}
+		last, have = v, true
+		if !s.add(v) {
+			return
+		}
+	}
+}
+
+// add inserts v and reports whether the set is still kept.
+func (s *ValueSet) add(v float64) bool {
+	if v == 0 {
+		v = 0 // -0 counts as +0, as the accumulators add it
+	}
+	i, found := slices.BinarySearch(s.vals, v)
+	if found {
+		return true
+	}
+	if len(s.vals) == MaxSetValues {
+		s.vals, s.many = nil, true
+		return false
+	}
+	s.vals = slices.Insert(s.vals, i, v)
+	return true
+}
+
+// Merge adds the values of o (another worker's or shard's cells).
+func (s *ValueSet) Merge(o ValueSet) {
+	if s.many {
+		return
+	}
+	if o.many {
+		s.vals, s.many = nil, true
+		return
+	}
+	for _, v := range o.vals {
+		if !s.add(v) {
+			return
+		}
+	}
+}
+
+// Values returns the distinct values, ascending, and true; nil and false
+// when there were more than MaxSetValues.
+func (s *ValueSet) Values() ([]float64, bool) { return s.vals, !s.many }
+
+// Encode writes the set: a uint64 flag (1: more than MaxSetValues), the
+// number of values, then each value's float64 bits, little-endian.
+func (s *ValueSet) Encode() []byte {
+	flag := uint64(0)
+	if s.many {
+		flag = 1
+	}
+	b := binary.LittleEndian.AppendUint64(nil, flag)
+	b = binary.LittleEndian.AppendUint64(b, uint64(len(s.vals)))
+	for _, v := range s.vals {
+		b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
+	}
+	return b
+}
+
+// DecodeValueSet reads what Encode wrote, refusing a set that no pass
+// makes (values not ascending, not finite, -0, too many, a many-valued
+// set with values).
+func DecodeValueSet(b []byte) (ValueSet, error) {
+	if len(b) < 16 {
+		return ValueSet{}, fmt.Errorf("value set of %d bytes, want at least 16", len(b))
+	}
+	flag, n := binary.LittleEndian.Uint64(b), binary.LittleEndian.Uint64(b[8:])
+	switch {
+	case flag > 1:
+		return ValueSet{}, fmt.Errorf("value set flag %d, want 0 or 1", flag)
+	case n > MaxSetValues || (flag == 1 && n != 0):
+		return ValueSet{}, fmt.Errorf("value set of %d values (flag %d) is impossible", n, flag)
+	case uint64(len(b)) != 16+8*n:
+		return ValueSet{}, fmt.Errorf("value set of %d values in %d bytes, want %d", n, len(b), 16+8*n)
+	}
+	s := ValueSet{many: flag == 1}
+	if n > 0 {
+		s.vals = make([]float64, n)
+	}
+	for i := range s.vals {
+		v := math.Float64frombits(binary.LittleEndian.Uint64(b[16+8*i:]))
+		if math.IsNaN(v) || math.IsInf(v, 0) || (v == 0 && math.Signbit(v)) || (i > 0 && !(s.vals[i-1] < v)) {
+			return ValueSet{}, errors.New("value set values are not distinct ascending finite numbers")
+		}
+		s.vals[i] = v
+	}
+	return s, nil
+}
+
+// binPoints returns, for the histogram bins i0..i0+nb-1 of a, the one
+// value of the model's value set that each bin can hold besides the
+// layout values (whose areas are point masses already), with ok[k] true
+// when there is exactly one: all of that bin's spread area then lies at
+// that value. Nil when a has no value set.
+func (a *Accumulator) binPoints(i0, nb int) (point []float64, ok []bool) {
+	if a.values == nil {
+		return nil, nil
+	}
+	point, ok = make([]float64, nb), make([]bool, nb)
+	count := make([]int, nb)
+	lo, _ := a.histEdges(i0)
+	_, hi := a.histEdges(i0 + nb - 1)
+	j := sort.SearchFloat64s(a.values, lo)
+	for ; j < len(a.values) && a.values[j] <= hi; j++ {
+		v := a.values[j]
+		k := int(gridBin(v, a.he)-a.hbase) - i0
+		if k < 0 || k >= nb || a.layout.Locate(v)%2 == 1 {
+			continue // outside these bins, or a layout value
+		}
+		count[k]++
+		point[k] = v
+	}
+	for k, c := range count {
+		ok[k] = c == 1
+	}
+	return point, ok
+}
