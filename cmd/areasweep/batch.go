@@ -23,6 +23,9 @@ type BatchOptions struct {
 	IO *IO
 	// Template prints an example study table and runs nothing.
 	Template bool
+	// cpusGiven says --cpus-per-task was given: its default, 1, cannot
+	// tell a value given without --slurm from none (validateSlurm).
+	cpusGiven bool
 	batchrun.Options
 }
 
@@ -93,6 +96,7 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 				}
 				opts.Memory = m
 			}
+			opts.cpusGiven = c.Flags().Changed("cpus-per-task")
 			if err := opts.validate(); err != nil {
 				return fault.BadInput(err)
 			}
@@ -154,7 +158,7 @@ func (o *BatchOptions) validate() error {
 	case o.Slurm.Submit && !o.Slurm.Enabled:
 		return errors.New("--submit needs --slurm")
 	}
-	return validateSlurm(&o.Slurm)
+	return validateSlurm(&o.Slurm, o.cpusGiven)
 }
 
 // bindSlurmFlags binds the flags of batch --slurm.
@@ -168,13 +172,33 @@ func bindSlurmFlags(f *pflag.FlagSet, o *batchrun.SlurmOptions) {
 	f.IntVar(&o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
 }
 
-// validateSlurm checks the flags of batch --slurm.
-func validateSlurm(o *batchrun.SlurmOptions) error {
+// validateSlurm checks the flags of batch --slurm; cpusGiven says
+// --cpus-per-task was given. A job resource given without --slurm is
+// refused rather than ignored: the batch would run every study on this
+// machine (a cluster's login node, say) instead of as the job asked for.
+func validateSlurm(o *batchrun.SlurmOptions, cpusGiven bool) error {
+	if !o.Enabled {
+		var given []string
+		for _, f := range []struct {
+			name string
+			set  bool
+		}{{"--partition", o.Partition != ""}, {"--time", o.TimeLimit != ""}, {"--cpus-per-task", cpusGiven}, {"--max-parallel", o.MaxParallel != 0}} {
+			if f.set {
+				given = append(given, f.name)
+			}
+		}
+		switch len(given) {
+		case 0:
+		case 1:
+			return fmt.Errorf("%s sets a resource of the SLURM jobs and needs --slurm; without it the studies run on this machine, --jobs at a time: add --slurm, or leave it out", given[0])
+		default:
+			return fmt.Errorf("%s set resources of the SLURM jobs and need --slurm; without it the studies run on this machine, --jobs at a time: add --slurm, or leave them out",
+				strings.Join(given[:len(given)-1], ", ")+" and "+given[len(given)-1])
+		}
+	}
 	switch {
 	case o.Wait && !o.Submit:
 		return errors.New("--wait needs --submit")
-	case !o.Enabled && (o.Partition != "" || o.TimeLimit != "" || o.MaxParallel != 0):
-		return errors.New("--partition, --time and --max-parallel need --slurm")
 	case o.CPUs < 1 || o.CPUs > settings.MaxWorkers:
 		return fmt.Errorf("--cpus-per-task is %d; give 1 to %d", o.CPUs, settings.MaxWorkers)
 	case o.MaxParallel < 0:

@@ -353,8 +353,9 @@ summary.csv,m=model.tif,occ.csv,region.geojson,0.05
 // TestBatchMemoryBudget checks that a study whose memory need alone
 // exceeds --memory is refused with the figures and what to do, without
 // stopping the batch (it still writes the summary; exit 1). Every run
-// needs at least GDAL's 64 MiB block cache (pipeline's estimate), so a
-// budget of 1 MiB refuses each study.
+// that scores needs at least the 128 MiB of blocks kept from a model's
+// sampling and GDAL's 16 MB block cache (pipeline.Estimate), so a budget
+// of 1 MiB refuses each study.
 func TestBatchMemoryBudget(t *testing.T) {
 	s := sharedStudy(t)
 	table := batchTable(t, s)

@@ -217,3 +217,35 @@ func TestBatchDamagedResults(t *testing.T) {
 		t.Error("the study run again wrote other results")
 	}
 }
+
+// TestBatchSlurmResourcesNeedSlurm: the SLURM job resources given without
+// --slurm are refused (exit 2) and nothing runs. Before, --cpus-per-task
+// alone was ignored without a word (its default, 1, hid it), so a batch
+// meant for the cluster ran every study on the machine it was typed on.
+func TestBatchSlurmResourcesNeedSlurm(t *testing.T) {
+	for _, c := range []struct {
+		args    []string
+		wantRun bool
+		want    string
+	}{
+		{[]string{"--cpus-per-task", "4"}, false, "--cpus-per-task sets a resource of the SLURM jobs and needs --slurm"},
+		{[]string{"--cpus-per-task", "1"}, false, "--cpus-per-task sets a resource"},
+		{[]string{"--partition", "gpu"}, false, "--partition sets a resource"},
+		{[]string{"--time", "02:00:00", "--max-parallel", "3"}, false, "--time and --max-parallel set resources of the SLURM jobs and need --slurm"},
+		{[]string{"--partition", "p", "--time", "1:00:00", "--cpus-per-task", "2"}, false, "--partition, --time and --cpus-per-task set resources"},
+		{[]string{"--cpus-per-task", "4", "--slurm"}, true, ""},
+		{[]string{"--jobs", "2"}, true, ""},
+	} {
+		ran := false
+		cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
+		cmd.SetArgs(append([]string{"t.csv", "--out", "o"}, c.args...))
+		cmd.SilenceErrors, cmd.SilenceUsage = true, true
+		err := cmd.Execute()
+		if ran != c.wantRun || (c.want == "") != (err == nil) || (err != nil && !strings.Contains(err.Error(), c.want)) {
+			t.Errorf("%v: ran %v, error %v; want ran %v and %q", c.args, ran, err, c.wantRun, c.want)
+		}
+		if err != nil && !fault.IsBadInput(err) {
+			t.Errorf("%v: %v is not a bad input (exit 2)", c.args, err)
+		}
+	}
+}

@@ -30,10 +30,12 @@ func newMergeCmd(streams *IO, runF func(*MergeOptions) error) *cobra.Command {
 		Short: "Combine the partial files of 'run --shard I/N' into the outputs of the whole run",
 		Long: `merge reads the partial files (shard-I-of-N.aspf) that 'run --shard I/N' wrote, given
 as files or as the folders holding them, checks that they are exactly the shards 1..N
-of one run (same areasweep version, input files, settings and seed; none missing or
-given twice), prepares that run again from the inputs and settings the shards
-recorded, adds up the shards' sums and writes the run's outputs into --out:
-results.json and scores.csv are byte for byte those of a single run.`,
+of one run (same areasweep version and build, input files, settings and seed; none
+missing or given twice), prepares that run again from the inputs and settings the
+shards recorded, adds up the shards' sums and writes the run's outputs into --out:
+results.json and scores.csv are byte for byte those of a single run. Run the shards
+and the merge with one executable (or copies of it): a build of the same sources
+elsewhere is another build, and its shards are refused.`,
 		Example: `  areasweep run --study study.yaml --shard 1/2 --out shards/1
   areasweep run --study study.yaml --shard 2/2 --out shards/2
   areasweep merge --out results shards/1 shards/2`,

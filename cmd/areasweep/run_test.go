@@ -120,3 +120,20 @@ func TestHelpHasExamples(t *testing.T) {
 		}
 	}
 }
+
+// TestMergeHelpNamesBuild: merge --help says the shards must come from one
+// build, as the merge checks (README, Shards). Before, it named only the
+// version, so shards of one version number rebuilt between two tasks,
+// which the merge refuses, looked mergeable from the help.
+func TestMergeHelpNamesBuild(t *testing.T) {
+	var out bytes.Buffer
+	if code := Main([]string{"merge", "--help"}, nil, &out, &out); code != 0 {
+		t.Fatalf("merge --help: exit %d\n%s", code, out.String())
+	}
+	help := strings.Join(strings.Fields(out.String()), " ")
+	for _, want := range []string{"same areasweep version and build", "with one executable (or copies of it)"} {
+		if !strings.Contains(help, want) {
+			t.Errorf("merge --help lacks %q:\n%s", want, out.String())
+		}
+	}
+}

@@ -571,7 +571,7 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 	frag(fmt.Sprintf("There are %s models.", wtWord(len(models))))
 	must(slices.Equal(models, []string{"good", "coarse"}), "the models are %v, not good and coarse", models)
 	frag(fmt.Sprintf("noisy response with only %d distinct values", run.coarseLevels))
-	frag(fmt.Sprintf("cut to a floor of %s.", wtG(coarseMin)))
+	frag(fmt.Sprintf("cut to a floor of %s (rounding to the %d values puts more land on it: the floor covers %s of the valid area", wtG(coarseMin), run.coarseLevels, wtPct(coarseFloor)))
 
 	// What the run prints.
 	frag(fmt.Sprintf("The family has %d members", len(r.Extents)))

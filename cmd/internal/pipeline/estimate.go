@@ -12,7 +12,7 @@ import (
 )
 
 // Estimate returns the memory in bytes a run of o is expected to need
-// (estimateMemory, the figure the run itself checks), before anything
+// (runMemory, the figure the run itself checks), before anything
 // runs: it reads the first model's grid and counts the lines of the
 // occurrence file (every record, before placing and thinning, so at least
 // the run's count). A batch uses it to run several studies within a
@@ -37,10 +37,7 @@ func Estimate(o Options) (int64, error) {
 	if err != nil {
 		return 0, err
 	}
-	workers := o.readWorkers()
-	reads, _ := o.readBytes(workers)
-	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, points+len(o.Thresholds), reads, points)
-	est.Resamples = o.resampleMemo(o.maxExtents(), points)
+	est, _, _ := o.runMemory(int64(g.Cells()), int64(g.Height), points)
 	return est.Total(), nil
 }
 

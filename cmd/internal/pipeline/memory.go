@@ -185,13 +185,7 @@ const memoryShare = 0.8
 func (s *Study) checkMemory() error {
 	o, g := s.o, s.grid
 	workers := o.readWorkers()
-	layout := len(s.points) + len(o.Thresholds)
-	reads, stripped := o.readBytes(workers)
-	est := estimateMemory(int64(g.Cells()), int64(g.Height), o.maxExtents(), workers, layout, reads, len(s.points))
-	est.Resamples = o.resampleMemo(o.maxExtents(), len(s.points))
-	if !o.ExtentsOnly {
-		est.Blocks += keptBlockBytes
-	}
+	est, reads, stripped := o.runMemory(int64(g.Cells()), int64(g.Height), len(s.points))
 	s.warnAddressSpace(est.Total(), extent.AddressSpaceLimit(), selfStatus("VmSize:"))
 	avail := availableMemory()
 	if avail == 0 || float64(est.Total()) <= memoryShare*float64(avail) {
@@ -202,6 +196,24 @@ func (s *Study) checkMemory() error {
 		"%d worker(s) x %d extents need %s for the scores, and the paired analysis %s for its resamples%s; resample the rasters coarser (gdalwarp -tr) or clip them to the study area (gdalwarp -te), "+
 		"or use fewer --workers, extents or --iterations",
 		gib(est.Total()), gib(avail), g.Width, g.Height, gib(est.Runs+est.Valid), workers, o.maxExtents(), gib(est.Accumulators), gib(est.Resamples), strips))
+}
+
+// runMemory is the estimate of what a run of o needs on a grid of cells
+// in rows with points occurrence records: estimateMemory, the paired
+// analysis's memo (resampleMemo) and, for a run that scores, the
+// keptBlockBytes of blocks a model's sampling keeps for its pass; reads
+// and stripped are readBytes's. The run's own check (checkMemory) and a
+// batch's need for the study (Estimate) both take it, so that a batch
+// budgets what each run then holds.
+func (o *Options) runMemory(cells, rows int64, points int) (est memoryUse, reads int64, stripped string) {
+	workers := o.readWorkers()
+	reads, stripped = o.readBytes(workers)
+	est = estimateMemory(cells, rows, o.maxExtents(), workers, points+len(o.Thresholds), reads, points)
+	est.Resamples = o.resampleMemo(o.maxExtents(), points)
+	if !o.ExtentsOnly {
+		est.Blocks += keptBlockBytes
+	}
+	return est, reads, stripped
 }
 
 // stripsAdvice is what a memory refusal says when reading the raster at
