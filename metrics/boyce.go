@@ -2,6 +2,7 @@ package metrics
 
 import (
 	"math"
+	"math/big"
 	"sort"
 )
 
@@ -65,8 +66,35 @@ type Boyce struct {
 const minBoyceShare = 1e-12
 
 // boyceWindow is one used Boyce window: its ends (inclusive), midpoint and
-// share of the extent's area.
-type boyceWindow struct{ lo, hi, mid, share float64 }
+// share of the extent's area. When exact, the window's area is units of
+// the extent's total area units (point masses only: no bin's area spread
+// over an interval reaches into the window), and its P/E ratios are
+// computed from those integers (ratio).
+type boyceWindow struct {
+	lo, hi, mid, share float64
+	exact              bool
+	units, total       int64
+}
+
+// ratio is the window's P/E for run of n presences in it:
+//
+//	F = (run / n) / share.
+//
+// For an exact window it is the float64 nearest the rational
+// run total / (n units), so that ratios equal in exact arithmetic (two
+// windows of as many equal-area cells, presences in proportion) are equal
+// bit for bit and rank as a tie, as they do on exact areas; rounding the
+// three divisions one by one left them one unit in the last place apart
+// now and then, ranked as two values.
+func (w *boyceWindow) ratio(run, n int) float64 {
+	if !w.exact || run == 0 {
+		return (float64(run) / float64(n)) / w.share
+	}
+	num := new(big.Int).Mul(big.NewInt(int64(run)), big.NewInt(w.total))
+	den := new(big.Int).Mul(big.NewInt(int64(n)), big.NewInt(w.units))
+	f, _ := new(big.Rat).SetFrac(num, den).Float64()
+	return f
+}
 
 // boyceWindows returns the windows with background area (share above
 // minBoyceShare), in order, for an extent's accumulator.
@@ -114,8 +142,10 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 		}
 	}
 
-	areaIn := func(lo, hi float64) float64 {
-		var s float64
+	// areaIn returns the area in [lo, hi], and whether it is the exact
+	// sum units of point masses (no spread bin reaches into the window).
+	areaIn := func(lo, hi float64) (s float64, units int64, exact bool) {
+		exact = true
 		// Bins whose interval can touch [lo, hi] (one more on each side,
 		// for the clipped ends).
 		k0 := max(0, int(gridBin(lo, a.he)-a.hbase)-i0-1)
@@ -128,17 +158,21 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 			if e1[k] > e0[k] {
 				if e0[k] >= lo && e1[k] <= hi {
 					s += whole[k]
+					exact = false
 					continue
 				}
 				ov := math.Min(e1[k], hi) - math.Max(e0[k], lo)
 				if ov > 0 {
 					s += spreadArea(float64(ar), ov, e1[k]-e0[k])
+					exact = false
 				}
 			} else if e0[k] >= lo && e0[k] <= hi {
 				s += float64(ar)
+				units += ar
 			}
 		}
-		return s + pointArea(pv, pcum, lo, hi)
+		pa, pu := pointArea(pv, pcum, lo, hi)
+		return s + pa, units + pu, exact
 	}
 
 	var step float64
@@ -152,11 +186,12 @@ func boyceWindows(a *Accumulator, width float64, steps int) []boyceWindow {
 		if i == steps-1 && steps > 1 {
 			hi = mx
 		}
-		e := areaIn(lo, hi) / total
+		ar, units, exact := areaIn(lo, hi)
+		e := ar / total
 		if !(e > minBoyceShare) {
 			continue
 		}
-		out = append(out, boyceWindow{lo: lo, hi: hi, mid: lo + w/2, share: e})
+		out = append(out, boyceWindow{lo: lo, hi: hi, mid: lo + w/2, share: e, exact: exact && units > 0, units: units, total: a.area})
 	}
 	return out
 }
@@ -194,25 +229,25 @@ func (a *Accumulator) pointMasses(i0, nb int) (spread []int64, pv []float64, pcu
 }
 
 // pointArea returns the area of the point masses pv (cumulative areas
-// pcum, see pointMasses) that lie in [lo, hi].
-func pointArea(pv []float64, pcum []int64, lo, hi float64) float64 {
+// pcum, see pointMasses) that lie in [lo, hi], as a float64 and in units.
+func pointArea(pv []float64, pcum []int64, lo, hi float64) (float64, int64) {
 	i := sort.SearchFloat64s(pv, lo)
 	j := sort.Search(len(pv), func(k int) bool { return pv[k] > hi })
 	if j <= i {
-		return 0
+		return 0, 0
 	}
-	return float64(pcum[j] - pcum[i])
+	return float64(pcum[j] - pcum[i]), pcum[j] - pcum[i]
 }
 
 // boyce computes the continuous Boyce index on the used windows win of
 // an extent (boyceWindows) of steps windows; sortedTest is ascending.
 func boyce(win []boyceWindow, steps int, sortedTest []float64) Boyce {
 	b := Boyce{Windows: steps}
-	n := float64(len(sortedTest))
-	for _, w := range win {
+	for i := range win {
+		w := &win[i]
 		c := sort.SearchFloat64s(sortedTest, math.Nextafter(w.hi, math.Inf(1))) - sort.SearchFloat64s(sortedTest, w.lo)
 		b.Mid = append(b.Mid, w.mid)
-		b.Ratio = append(b.Ratio, (float64(c)/n)/w.share)
+		b.Ratio = append(b.Ratio, w.ratio(c, len(sortedTest)))
 	}
 	b.Used = len(b.Mid)
 	b.Index, b.Defined, b.Reason = boyceIndex(b.Ratio, b.Mid)

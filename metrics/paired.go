@@ -571,8 +571,7 @@ func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *V
 		} else {
 			win := e.win[:len(ratio)]
 			for w, span := range spans {
-				run := before[span[1]] - before[span[0]]
-				ratio[w] = (float64(run) / rf) / win[w].share
+				ratio[w] = win[w].ratio(before[span[1]]-before[span[0]], r)
 			}
 		}
 		out.Boyce, out.BoyceOK = e.boyceRho(ratio, before, spans, rf, sc)
@@ -657,7 +656,7 @@ func (e *Evaluator) boyceRho(ratio []float64, before []int, spans [][2]int32, rf
 			for q := i; q < j; q++ {
 				w := sp[q]
 				run := before[spans[w][1]] - before[spans[w][0]]
-				k, p := math.Float64bits((float64(run)/rf)/win[w].share), w
+				k, p := math.Float64bits(win[w].ratio(run, int(rf))), w
 				h := q
 				for h > i && sk[h-1] > k {
 					sk[h], sp[h] = sk[h-1], sp[h-1]
@@ -680,8 +679,7 @@ func (e *Evaluator) boyceRho(ratio []float64, before []int, spans [][2]int32, rf
 	} else {
 		if e.exactRho { // keys that are not all >= +0 (no count or share gives such)
 			for w, span := range spans {
-				run := before[span[1]] - before[span[0]]
-				ratio[w] = (float64(run) / rf) / e.win[w].share
+				ratio[w] = e.win[w].ratio(before[span[1]]-before[span[0]], int(rf))
 			}
 		}
 		rx := averageRanksInto(ratio, sc)

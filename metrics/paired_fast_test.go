@@ -76,7 +76,7 @@ func (e *Evaluator) evalReference(count []int32) Values {
 		run := 0
 		for w, bw := range e.win {
 			run += diff[w]
-			ratio[w] = (float64(run) / rf) / bw.share
+			ratio[w] = bw.ratio(run, r) // (run / r) / share, exact for an exact window
 			mid[w] = bw.mid
 		}
 		out.Boyce, out.BoyceOK, _ = boyceIndex(ratio, mid)

@@ -188,12 +188,11 @@ type e2eScore struct {
 		// presence value or a fixed threshold: then the window areas
 		// and the index are exact.
 		Exact bool `json:"exact"`
-		// ExactWindows is true when, besides, the model has at most
-		// 4096 values on the cells of all extents and no two of them can
-		// share a histogram bin (README: such a bin's area lies at its
-		// one value): every window's share of area is exact, E below.
-		ExactWindows bool      `json:"exact_windows"`
-		E            []float64 `json:"e"`
+		// Exact is also true when the model has at most 4096 values on
+		// the cells of all extents and no two of them can share a
+		// histogram bin (README: such a bin's area lies at its one
+		// value). E are the windows' exact shares of area.
+		E []float64 `json:"e"`
 		// The extent's value range and test presences, and one entry
 		// per window of the 100: the presences in it and bounds on its
 		// share of area (golden.py boyce).
@@ -881,9 +880,10 @@ func e2eVerdictRule(pos []string) string {
 // a bin's width of its ends must be used. The index must equal the exact
 // one (scipy.stats.spearmanr) within 1e-9 when every value of the cells
 // is a presence value or threshold (the Byte model), and within 0.01
-// otherwise (measured: at most 0.0033). For a model of few values whose
-// bins hold one value each, every window's P/E must equal the exact one
-// within 1e-9 (our tolerance: the shares are stored to 12 digits).
+// otherwise (measured: at most 0.0033); so must a model of few values
+// whose bins hold one value each, and then every window's P/E must equal
+// the exact one within 1e-9 (our tolerance: the shares are stored to 12
+// digits).
 func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore) {
 	t.Helper()
 	if (b != nil) != s.Boyce.Defined {
@@ -928,7 +928,7 @@ func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore) {
 		if ehi <= 1e-12 || f < lo*(1-1e-9) || f > hi*(1+1e-9) || (f == 0) != (p == 0) {
 			t.Errorf("%s: Boyce window at %v: P/E %v outside [%v, %v] (P %v)", lab, mid, f, lo, hi, p)
 		}
-		if w.ExactWindows && (len(w.E) != 100 || relDiff(f, p/w.E[found]) > 1e-9) {
+		if w.Exact && (len(w.E) != 100 || relDiff(f, p/w.E[found]) > 1e-9) {
 			t.Errorf("%s: Boyce window at %v: P/E %v, want %v (exact window area, model of few values)", lab, mid, f, p/w.E[found])
 		}
 	}

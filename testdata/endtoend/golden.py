@@ -711,16 +711,25 @@ def boyce(bg, w, test, layout, distinct=None, width=0.1, steps=100):
     if distinct is not None and len(distinct) <= 4096:
         near = distinct[(distinct >= mn - delta) & (distinct <= mx + delta)]
         few = bool(len(near) < 2 or float(np.diff(near).min()) > delta)
-    out["exact"] = bool(np.isin(u, layout).all())
-    # With few values E is exact in every window, but the index is not
-    # bit for bit: ratios equal in exact arithmetic (on an equal-area grid,
-    # windows of as many cells and presences in proportion) may round one
-    # unit apart and rank as two values, not a tie. So the windows' E are
-    # checked exactly and the index within the general tolerance.
-    out["exact_windows"] = out["exact"] or few
+    out["exact"] = bool(np.isin(u, layout).all()) or few
     out["e"] = [float(f"{share(x[4], x[5]):.12g}") for x in windows]
     if out["defined"]:
-        out["index"] = float(spearmanr(fs, mids).statistic)
+        out["index"] = float(spearmanr(tied(fs), mids).statistic)
+    return out
+
+
+def tied(fs, rel=1e-10):
+    """fs with values within rel (relative, our choice) of the one before
+    them in ascending order set to it: ratios equal in exact arithmetic (on
+    an equal-area grid, windows of as many cells with presences in
+    proportion) rank as the tie they are, as areasweep ranks them (it holds
+    areas in whole units), where pyproj's per-cell areas leave them apart
+    by about 1e-12."""
+    out = list(fs)
+    order = sorted(range(len(fs)), key=lambda i: fs[i])
+    for a, b in zip(order, order[1:]):
+        if out[b] - out[a] <= rel * abs(out[b]):
+            out[b] = out[a]
     return out
 
 
