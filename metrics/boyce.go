@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math"
-	"math/big"
 	"sort"
 )
 
@@ -80,20 +79,31 @@ type boyceWindow struct {
 //
 //	F = (run / n) / share.
 //
-// For an exact window it is the float64 nearest the rational
-// run total / (n units), so that ratios equal in exact arithmetic (two
-// windows of as many equal-area cells, presences in proportion) are equal
-// bit for bit and rank as a tie, as they do on exact areas; rounding the
-// three divisions one by one left them one unit in the last place apart
-// now and then, ranked as two values.
+// For an exact window share is units / total, and F is computed from the
+// fraction run / units in lowest terms, p / q:
+//
+//	F = (p / n) / (q / total),
+//
+// so that ratios equal in exact arithmetic (two windows of as many
+// equal-area cells, presences in proportion: the same p / q) are equal
+// bit for bit and rank as a tie, as they do on exact areas; rounding
+// (run / n) / share left them one unit in the last place apart now and
+// then, ranked as two values.
 func (w *boyceWindow) ratio(run, n int) float64 {
 	if !w.exact || run == 0 {
 		return (float64(run) / float64(n)) / w.share
 	}
-	num := new(big.Int).Mul(big.NewInt(int64(run)), big.NewInt(w.total))
-	den := new(big.Int).Mul(big.NewInt(int64(n)), big.NewInt(w.units))
-	f, _ := new(big.Rat).SetFrac(num, den).Float64()
-	return f
+	g := gcd(uint64(w.units), uint64(run))
+	p, q := uint64(run)/g, uint64(w.units)/g
+	return (float64(p) / float64(n)) / (float64(q) / float64(w.total))
+}
+
+// gcd returns the greatest common divisor of a and b (Euclid).
+func gcd(a, b uint64) uint64 {
+	for b != 0 {
+		a, b = b, a%b
+	}
+	return a
 }
 
 // boyceWindows returns the windows with background area (share above
