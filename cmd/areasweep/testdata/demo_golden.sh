@@ -207,6 +207,12 @@
 #     of 1 says the extents order the models' point estimates as base
 #     does and points to the paired differences: those sentences of
 #     results.json only, every number and scores.csv unchanged).
+#   - rewritten on 2026-12-05 (a Boyce window whose area is point masses
+#     only takes its P/E from the fraction of its presences over its area
+#     units in lowest terms, so that ratios equal in exact arithmetic tie:
+#     some of the coarse model's pe_ratio values moved by one unit in the
+#     last place; no index, interval or other number changed, and
+#     scores.csv's hash is the same).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
