@@ -85,7 +85,7 @@ func Build(g *Grid, valid *Valid, spec Spec, trainCells, testCells []int) (*Fami
 		}
 	}
 	if len(spec.HullBuffersKm) > 0 {
-		if err := b.hull(spec.Train, spec.HullBuffersKm); err != nil {
+		if err := b.hull(spec.Train, spec.HullBuffersKm, spec.ThinnedTrain); err != nil {
 			return nil, err
 		}
 	}

@@ -39,6 +39,10 @@ type Spec struct {
 	RegionBuffersKm []float64
 	// Train and Test are the occurrence points in WGS84.
 	Train, Test []LonLat
+	// ThinnedTrain is the number of training records left out of Train
+	// by thinning (one record per cell): the hull's refusal of too few
+	// points names them.
+	ThinnedTrain int
 	// PointBuffersKm are radii of discs around the training points (or all
 	// points when PointBuffersAll).
 	PointBuffersKm  []float64

@@ -268,10 +268,20 @@ func (s *sphericalHull) boundary() []LonLat {
 // WGS84 ellipsoid to the edges densified as ellipsoidal geodesics at the
 // smallest cell side (the two edge curves differ by far less than a cell at
 // continental scale).
-func (b *builder) hull(train []LonLat, ds []float64) error {
+//
+// thinned is the number of training records thinning left out (see
+// Spec.ThinnedTrain): a hull refused for too few points says so, since
+// its count is after thinning.
+func (b *builder) hull(train []LonLat, ds []float64, thinned int) error {
 	h, err := newSphericalHull(train)
 	if err != nil {
-		b.f.Warnings = append(b.f.Warnings, err.Error()+"; no hull extents")
+		msg := err.Error()
+		if thinned == 1 {
+			msg += " (counted after thinning, which left out 1 training record sharing a cell with another)"
+		} else if thinned > 1 {
+			msg += fmt.Sprintf(" (counted after thinning, which left out %d training records sharing a cell with another)", thinned)
+		}
+		b.f.Warnings = append(b.f.Warnings, msg+"; no hull extents")
 		return nil
 	}
 	ds = sortedUnique(ds)

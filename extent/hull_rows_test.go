@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"slices"
+	"strings"
 	"sync"
 	"testing"
 )
@@ -202,7 +203,7 @@ func TestHullMemoryWidth(t *testing.T) {
 		runtime.GC()
 		var before, after runtime.MemStats
 		runtime.ReadMemStats(&before)
-		if err := b.hull(pts, []float64{0}); err != nil {
+		if err := b.hull(pts, []float64{0}, 0); err != nil {
 			t.Fatal(err)
 		}
 		runtime.ReadMemStats(&after)
@@ -229,5 +230,34 @@ func TestHullMemoryWidth(t *testing.T) {
 	}
 	if wideB > 2*narrowB {
 		t.Errorf("the hull allocated %d bytes on a grid 262,144 cells wide, %d on one 8,192 wide: memory grows with the width", wideB, narrowB)
+	}
+}
+
+// TestHullTooFewSaysThinned: a hull refused for too few training points
+// says its count is after thinning when thinning left records out (a user
+// with five records in two cells read "have 2" and saw five), and not
+// otherwise.
+func TestHullTooFewSaysThinned(t *testing.T) {
+	g, err := NewGrid(10, 10, [6]float64{0, 0.1, 0, 1, 0, -0.1}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	pts := []LonLat{{Lon: 0.15, Lat: 0.55}, {Lon: 0.75, Lat: 0.35}}
+	for _, c := range []struct {
+		thinned int
+		want    string
+	}{
+		{0, "a convex hull needs 3 or more training points, have 2; no hull extents"},
+		{1, "have 2 (counted after thinning, which left out 1 training record sharing a cell with another); no hull extents"},
+		{3, "have 2 (counted after thinning, which left out 3 training records sharing a cell with another); no hull extents"},
+	} {
+		b := &builder{g: g, f: &Family{Grid: g, Chains: map[string][]int{}}}
+		if err := b.hull(pts, []float64{0}, c.thinned); err != nil {
+			t.Fatal(err)
+		}
+		if len(b.f.Warnings) != 1 || !strings.HasSuffix(b.f.Warnings[0], c.want) || (c.thinned == 0 && strings.Contains(b.f.Warnings[0], "thinning")) {
+			t.Errorf("%d thinned: warnings %q, want one ending %q", c.thinned, b.f.Warnings, c.want)
+		}
 	}
 }

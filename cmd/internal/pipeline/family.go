@@ -29,6 +29,11 @@ func (s *Study) buildFamily() error {
 		EcoregionMinPoints: o.EcoregionMinPoints,
 		EcoregionClip:      o.EcoregionClip,
 	}
+	for _, p := range s.points {
+		if p.Role == vocab.RoleTrain && p.Status == vocab.PointThinned {
+			spec.ThinnedTrain++
+		}
+	}
 	if len(train) > 0 {
 		spec.PointBuffersKm = o.PointBuffers
 		spec.HullBuffersKm = o.HullBuffers
