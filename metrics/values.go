@@ -75,11 +75,29 @@ func (s *ValueSet) Merge(o ValueSet) {
 		s.vals, s.many = nil, true
 		return
 	}
-	for _, v := range o.vals {
-		if !s.add(v) {
+	if len(o.vals) == 0 {
+		return
+	}
+	// A merge of two ascending lists, dropped past MaxSetValues.
+	out := make([]float64, 0, min(len(s.vals)+len(o.vals), MaxSetValues))
+	i, j := 0, 0
+	for i < len(s.vals) || j < len(o.vals) {
+		var v float64
+		switch {
+		case j == len(o.vals) || (i < len(s.vals) && s.vals[i] < o.vals[j]):
+			v, i = s.vals[i], i+1
+		case i == len(s.vals) || o.vals[j] < s.vals[i]:
+			v, j = o.vals[j], j+1
+		default: // equal
+			v, i, j = s.vals[i], i+1, j+1
+		}
+		if len(out) == MaxSetValues {
+			s.vals, s.many = nil, true
 			return
 		}
+		out = append(out, v)
 	}
+	s.vals = out
 }
 
 // Values returns the distinct values, ascending, and true; nil and false
