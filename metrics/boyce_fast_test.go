@@ -139,10 +139,8 @@ func TestBoyceWindowEndOnValue(t *testing.T) {
 		t.Fatal(err)
 	}
 	a := l.NewAccumulator()
-	var tot float64
 	for i, v := range bg {
 		a.Add(v, w[i])
-		tot += float64(w[i])
 	}
 	s := Settings{E: []float64{0.05}, Iterations: 1, BoyceWidth: 0.1, BoyceSteps: 100}
 	sc, err := Score(a, nil, test, s)
@@ -151,34 +149,7 @@ func TestBoyceWindowEndOnValue(t *testing.T) {
 	}
 	b := sc.Boyce
 	// Brute force: the same window ends, exact areas and counts.
-	span := 6.0
-	wd := 0.1 * span
-	step := (span - wd) / 99
-	var mids, ratios []float64
-	for i := 0; i < 100; i++ {
-		lo := float64(i) * step
-		hi := lo + wd
-		if i == 99 {
-			hi = 6
-		}
-		var e float64
-		for j, v := range bg {
-			if v >= lo && v <= hi {
-				e += float64(w[j])
-			}
-		}
-		if e == 0 {
-			continue
-		}
-		p := 0
-		for _, v := range test {
-			if v >= lo && v <= hi {
-				p++
-			}
-		}
-		mids = append(mids, lo+wd/2)
-		ratios = append(ratios, float64(p)/float64(len(test))/(e/tot))
-	}
+	mids, ratios := bruteBoyce(bg, w, test)
 	if len(b.Mid) != len(mids) {
 		t.Fatalf("%d windows used, brute force %d", len(b.Mid), len(mids))
 	}
@@ -244,39 +215,7 @@ func TestBoyceFewValuesNotHeldByPresences(t *testing.T) {
 			}
 			return sc.Boyce
 		}
-		mn, mx := slices.Min(bg), slices.Max(bg)
-		span := mx - mn
-		wd := 0.1 * span
-		step := (span - wd) / 99
-		var tot float64
-		for _, x := range w {
-			tot += float64(x)
-		}
-		var mids, ratios []float64
-		for i := 0; i < 100; i++ {
-			lo := mn + float64(i)*step
-			hi := lo + wd
-			if i == 99 {
-				hi = mx
-			}
-			var e float64
-			for j, v := range bg {
-				if v >= lo && v <= hi {
-					e += float64(w[j])
-				}
-			}
-			if e == 0 {
-				continue
-			}
-			p := 0
-			for _, v := range c.test {
-				if v >= lo && v <= hi {
-					p++
-				}
-			}
-			mids = append(mids, lo+wd/2)
-			ratios = append(ratios, float64(p)/float64(len(c.test))/(e/tot))
-		}
+		mids, ratios := bruteBoyce(bg, w, c.test)
 		worst := func(b Boyce) float64 {
 			if len(b.Mid) != len(mids) {
 				return math.Inf(1)
@@ -332,4 +271,43 @@ func TestBoyceExactWindowTies(t *testing.T) {
 	if !oldBroken {
 		t.Errorf("no pair found whose ratios rounded step by step differ: the case tests nothing")
 	}
+}
+
+// bruteBoyce is the Boyce windows' midpoints and P/E ratios counted cell by
+// cell (worked by hand in code): windows of width 0.1 of the range of bg
+// in 100 equal steps, both ends inclusive, the last ending at the
+// maximum, exact areas w; windows without area are left out.
+func bruteBoyce(bg []float64, w []int64, test []float64) (mids, ratios []float64) {
+	mn, mx := slices.Min(bg), slices.Max(bg)
+	wd := 0.1 * (mx - mn)
+	step := (mx - mn - wd) / 99
+	var tot float64
+	for _, x := range w {
+		tot += float64(x)
+	}
+	for i := 0; i < 100; i++ {
+		lo := mn + float64(i)*step
+		hi := lo + wd
+		if i == 99 {
+			hi = mx
+		}
+		var e float64
+		for j, v := range bg {
+			if v >= lo && v <= hi {
+				e += float64(w[j])
+			}
+		}
+		if e == 0 {
+			continue
+		}
+		p := 0
+		for _, v := range test {
+			if v >= lo && v <= hi {
+				p++
+			}
+		}
+		mids = append(mids, lo+wd/2)
+		ratios = append(ratios, float64(p)/float64(len(test))/(e/tot))
+	}
+	return mids, ratios
 }
