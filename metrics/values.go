@@ -20,14 +20,19 @@ const MaxSetValues = 4096
 // decimals, a model of a few classes. The Boyce index reads it to place
 // each histogram bin's area exactly at the one value the bin holds
 // (Accumulator.SetModelValues), where the histogram alone spreads it
-// over the bin.
+// over the bin. Values gives the set only when the cells hold on average
+// at least two cells per value (our choice): a continuous model on a
+// small grid, whose cells each hold a value of their own, keeps the
+// histogram, as the distance-only null (which has no value set) does, so
+// a raster copy of the null scores what the null scores.
 //
 // The set depends only on the cells added, not on their order or on how
 // they were split among workers or shards (Merge is a union), so a run's
 // results do not depend on either. The zero value is an empty set.
 type ValueSet struct {
-	vals []float64 // ascending, distinct, finite, -0 read as +0
-	many bool      // more than MaxSetValues: vals is nil
+	vals  []float64 // ascending, distinct, finite, -0 read as +0
+	many  bool      // more than MaxSetValues: vals is nil
+	cells int64     // cells added; 0 once many, whatever the split
 }
 
 // AddRow adds the values of the cells i with bins[i] >= 0 (Layout.LocateRow:
@@ -39,7 +44,11 @@ func (s *ValueSet) AddRow(vals []float64, bins []int32) {
 	}
 	last, have := 0.0, false
 	for i, v := range vals {
-		if bins[i] < 0 || (have && v == last) {
+		if bins[i] < 0 {
+			continue
+		}
+		s.cells++
+		if have && v == last {
 			continue
 		}
 		last, have = v, true
@@ -59,7 +68,7 @@ func (s *ValueSet) add(v float64) bool {
 		return true
 	}
 	if len(s.vals) == MaxSetValues {
-		s.vals, s.many = nil, true
+		s.vals, s.many, s.cells = nil, true, 0
 		return false
 	}
 	s.vals = slices.Insert(s.vals, i, v)
@@ -72,9 +81,10 @@ func (s *ValueSet) Merge(o ValueSet) {
 		return
 	}
 	if o.many {
-		s.vals, s.many = nil, true
+		s.vals, s.many, s.cells = nil, true, 0
 		return
 	}
+	s.cells += o.cells
 	if len(o.vals) == 0 {
 		return
 	}
@@ -92,7 +102,7 @@ func (s *ValueSet) Merge(o ValueSet) {
 			v, i, j = s.vals[i], i+1, j+1
 		}
 		if len(out) == MaxSetValues {
-			s.vals, s.many = nil, true
+			s.vals, s.many, s.cells = nil, true, 0
 			return
 		}
 		out = append(out, v)
@@ -100,18 +110,26 @@ func (s *ValueSet) Merge(o ValueSet) {
 	s.vals = out
 }
 
-// Values returns the distinct values, ascending, and true; nil and false
-// when there were more than MaxSetValues.
-func (s *ValueSet) Values() ([]float64, bool) { return s.vals, !s.many }
+// Values returns the distinct values, ascending, and true when there are
+// at most MaxSetValues of them and at least two cells per value on
+// average; nil and false otherwise.
+func (s *ValueSet) Values() ([]float64, bool) {
+	if s.many || 2*int64(len(s.vals)) > s.cells {
+		return nil, false
+	}
+	return s.vals, true
+}
 
 // Encode writes the set: a uint64 flag (1: more than MaxSetValues), the
-// number of values, then each value's float64 bits, little-endian.
+// number of cells added, the number of values, then each value's float64
+// bits, little-endian.
 func (s *ValueSet) Encode() []byte {
 	flag := uint64(0)
 	if s.many {
 		flag = 1
 	}
 	b := binary.LittleEndian.AppendUint64(nil, flag)
+	b = binary.LittleEndian.AppendUint64(b, uint64(s.cells))
 	b = binary.LittleEndian.AppendUint64(b, uint64(len(s.vals)))
 	for _, v := range s.vals {
 		b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
@@ -123,24 +141,24 @@ func (s *ValueSet) Encode() []byte {
 // makes (values not ascending, not finite, -0, too many, a many-valued
 // set with values).
 func DecodeValueSet(b []byte) (ValueSet, error) {
-	if len(b) < 16 {
-		return ValueSet{}, fmt.Errorf("value set of %d bytes, want at least 16", len(b))
+	if len(b) < 24 {
+		return ValueSet{}, fmt.Errorf("value set of %d bytes, want at least 24", len(b))
 	}
-	flag, n := binary.LittleEndian.Uint64(b), binary.LittleEndian.Uint64(b[8:])
+	flag, cells, n := binary.LittleEndian.Uint64(b), binary.LittleEndian.Uint64(b[8:]), binary.LittleEndian.Uint64(b[16:])
 	switch {
 	case flag > 1:
 		return ValueSet{}, fmt.Errorf("value set flag %d, want 0 or 1", flag)
-	case n > MaxSetValues || (flag == 1 && n != 0):
-		return ValueSet{}, fmt.Errorf("value set of %d values (flag %d) is impossible", n, flag)
-	case uint64(len(b)) != 16+8*n:
-		return ValueSet{}, fmt.Errorf("value set of %d values in %d bytes, want %d", n, len(b), 16+8*n)
+	case n > MaxSetValues || (flag == 1 && (n != 0 || cells != 0)) || cells > math.MaxInt64 || n > cells:
+		return ValueSet{}, fmt.Errorf("value set of %d values on %d cells (flag %d) is impossible", n, cells, flag)
+	case uint64(len(b)) != 24+8*n:
+		return ValueSet{}, fmt.Errorf("value set of %d values in %d bytes, want %d", n, len(b), 24+8*n)
 	}
-	s := ValueSet{many: flag == 1}
+	s := ValueSet{many: flag == 1, cells: int64(cells)}
 	if n > 0 {
 		s.vals = make([]float64, n)
 	}
 	for i := range s.vals {
-		v := math.Float64frombits(binary.LittleEndian.Uint64(b[16+8*i:]))
+		v := math.Float64frombits(binary.LittleEndian.Uint64(b[24+8*i:]))
 		if math.IsNaN(v) || math.IsInf(v, 0) || (v == 0 && math.Signbit(v)) || (i > 0 && !(s.vals[i-1] < v)) {
 			return ValueSet{}, errors.New("value set values are not distinct ascending finite numbers")
 		}

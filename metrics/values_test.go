@@ -8,13 +8,19 @@ import (
 )
 
 // TestValueSet: the set holds each distinct value once, ascending, -0 as
-// +0, skips cells without a value (bin -1), is the same however the
+// +0, skips cells without a value (bin -1), is given only with at least
+// two cells per value, is the same however the
 // cells are split and merged (a union), is dropped past MaxSetValues
 // values (also through a merge), and Encode/DecodeValueSet round-trip it
 // and refuse sets no pass makes.
 func TestValueSet(t *testing.T) {
 	var s ValueSet
 	s.AddRow([]float64{3, 3, 1, math.Copysign(0, -1), 2, 99, 1}, []int32{0, 0, 0, 0, 0, -1, 0})
+	// 6 cells of 4 values: fewer than two cells per value, no set.
+	if got, ok := s.Values(); ok || got != nil {
+		t.Errorf("values %v (%v) of 4 values on 6 cells, want none", got, ok)
+	}
+	s.AddRow([]float64{2, 0}, []int32{0, 0})
 	if got, ok := s.Values(); !ok || !slices.Equal(got, []float64{0, 1, 2, 3}) || math.Signbit(got[0]) {
 		t.Errorf("values %v (%v), want [0 1 2 3]", got, ok)
 	}

@@ -651,7 +651,7 @@ def thresholds(bg, w, test, train_all, fixed):
     return out
 
 
-def boyce(bg, w, test, layout, distinct=None, width=0.1, steps=100):
+def boyce(bg, w, test, layout, distinct=None, ncells=0, width=0.1, steps=100):
     """Continuous Boyce index (Hirzel et al. 2006) with exact window areas:
     windows of width 0.1 (max - min) in 100 equal steps, both ends
     inclusive, the last one ending at max; P = share of test presences and
@@ -702,13 +702,14 @@ def boyce(bg, w, test, layout, distinct=None, width=0.1, steps=100):
            "e_lo": [float(f"{x[2]:.12g}") for x in windows], "e_hi": [float(f"{x[3]:.12g}") for x in windows]}
     out["defined"] = len(fs) >= 3 and len(set(fs)) >= 2
     # Exact also for a model of few values (at most 4096 distinct values
-    # on the cells of all extents, areasweep's value set) no two of which
+    # on the ncells cells of all extents, at least two cells per value on
+    # average: areasweep's value set) no two of which
     # can share a bin of this extent's histogram: their gaps near the
     # extent's range exceed the widest bin, delta (README: each bin
     # holding one value besides the layout's has its area at that value).
     u = np.unique(bg)
     few = False
-    if distinct is not None and len(distinct) <= 4096:
+    if distinct is not None and len(distinct) <= 4096 and 2 * len(distinct) <= ncells:
         near = distinct[(distinct >= mn - delta) & (distinct <= mx + delta)]
         few = bool(len(near) < 2 or float(np.diff(near).min()) > delta)
     out["exact"] = bool(np.isin(u, layout).all()) or few
@@ -945,6 +946,7 @@ def study(spec):
         # The distinct values on the cells of all extents (areasweep's
         # value set of the model).
         distinct = np.unique(v[in_any & ~np.isnan(v)] + 0.0)
+        ncells = int(np.sum(in_any & ~np.isnan(v)))
         train_all = np.array([v[c] for c in train_cells if not np.isnan(v[c])])
         layout = np.r_[train_all, [v[c] for c in test_cells if not np.isnan(v[c])], spec["thresholds"]]
         for eid, mask, amb in extents:
@@ -972,7 +974,7 @@ def study(spec):
             s["partial_roc"] = [partial_roc(bg, wt, te, e) for e in spec["e"]]
             s["thresholds"] = thresholds(bg, wt, te, train_all, spec["thresholds"])
             if name != "distance_null":
-                s["boyce"] = boyce(bg, wt, te, layout, distinct)
+                s["boyce"] = boyce(bg, wt, te, layout, distinct, ncells)
             scores.append(s)
 
     # Rings of the nested chains (README "rings[]"): consecutive ok members
