@@ -276,6 +276,11 @@ func nullGapFigures(r *Results) []figure {
 		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
 		drawLegendRows(top, legend)
 		rest.Max.X -= edgePad
+		// The 2 pt the panels of the other figures keep on their left
+		// (drawTiles' PadLeft): gonum sets the vertical axis title's
+		// baseline one text height from the canvas's edge, so without them
+		// the tops of its glyphs stood 0.8 pt outside the figure.
+		rest.Min.X += vg.Points(2)
 		p.Draw(rest)
 		return nil
 	}
