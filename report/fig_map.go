@@ -278,8 +278,15 @@ func mapKeyOf(r *Results, g mapGroup) mapKey {
 		rk := &rampKey{label: "buffer distance (km)", lo: math.Inf(1), hi: math.Inf(-1)}
 		val := func(e Extent) float64 { d, _ := extentDistance(e); return d }
 		if !allDist {
-			rk.label, rk.log = "extent area (km²)", true
-			val = func(e Extent) float64 { return e.AreaKm2 }
+			// The area bar counts in the unit of the other area axes
+			// (areaAxis), not in km² at any size ("2000000").
+			most := 0.0
+			for _, q := range rest {
+				most = math.Max(most, r.Extents[g.members[q]].AreaKm2)
+			}
+			div, unit := areaAxis(most)
+			rk.label, rk.log = unit, true
+			val = func(e Extent) float64 { return e.AreaKm2 / div }
 		}
 		vals := map[int]float64{}
 		for _, q := range rest {

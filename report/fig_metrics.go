@@ -124,8 +124,13 @@ func valueRange(kind MetricKind, lo, hi float64) (float64, float64) {
 }
 
 // areaAxis returns the divisor and unit of an area axis whose largest
-// value is max km².
+// value is max km²: million km² from 10 million km² on, where areaRange
+// (the summary's words) counts in millions too and thousands would label
+// a global study's axis "100000", "500000"; 1000 km² from 10,000 km².
 func areaAxis(max float64) (float64, string) {
+	if max >= 1e7 {
+		return 1e6, "extent area (million km²)"
+	}
 	if max >= 1e4 {
 		return 1e3, "extent area (1000 km²)"
 	}

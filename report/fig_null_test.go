@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 	"testing"
 
@@ -160,5 +161,46 @@ func TestFactorKeyModelsWithoutLine(t *testing.T) {
 	}
 	if models != 3 || nullsKeyed != 2 {
 		t.Errorf("key of 3 models and 2 nulls: %d model entries, %d null entries", models, nullsKeyed)
+	}
+}
+
+// TestAreaAxisGlobalUnit: the area axes of metrics_vs_area,
+// model_minus_null and the ROC colour bar counted in 1000 km² at any
+// size, so a study of the whole globe (510 million km²) read "100000",
+// "200000", "500000" on its axes while the report's summary said "from 66
+// to 510 million km²" (areaRange). Past 10 million km², as areaRange, the
+// axes count in million km²; below 10,000 km² in km², between in 1000 km².
+func TestAreaAxisGlobalUnit(t *testing.T) {
+	for _, tc := range []struct {
+		max  float64
+		div  float64
+		unit string
+	}{
+		{9999, 1, "extent area (km²)"},
+		{1e4, 1e3, "extent area (1000 km²)"},
+		{3.25e6, 1e3, "extent area (1000 km²)"},
+		{1e7, 1e6, "extent area (million km²)"},
+		{5.1e8, 1e6, "extent area (million km²)"},
+	} {
+		if div, unit := areaAxis(tc.max); div != tc.div || unit != tc.unit {
+			t.Errorf("areaAxis(%g) = %g, %q; want %g, %q", tc.max, div, unit, tc.div, tc.unit)
+		}
+	}
+	// The model-minus-null figure of a global study: extents of 66, 105
+	// and 510 million km² (a run on a 0.25° grid of the whole globe).
+	r := gapResults(1, 1)
+	for i := range r.Sensitivity.AboveNull {
+		for k, a := range []float64{6.6e7, 1.05e8, 5.1e8} {
+			r.Sensitivity.AboveNull[i].Gaps[k].AreaKm2 = a
+		}
+	}
+	texts := drawnTexts(t, nullGapFigures(r)[0])
+	if !slices.Contains(texts, "extent area (million km²)") {
+		t.Errorf("axis title not in million km²: %q", texts)
+	}
+	for _, s := range texts {
+		if len(s) >= 5 && strings.Trim(s, "0123456789") == "" {
+			t.Errorf("tick label %q: five digits or more where the unit could be a million km²", s)
+		}
 	}
 }
