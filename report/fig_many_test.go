@@ -541,35 +541,47 @@ func TestROCNullPanelShaded(t *testing.T) {
 }
 
 // TestLogTicksSpread: with an axis length, log tick labels never come
-// within 3 pt of each other (but two powers of ten, always labelled), and
-// on a long enough axis every 1, 2 and 5 x 10^k is.
+// within 3 pt of each other, powers of ten included (each labelled unless
+// it would touch the one labelled before it), and on a long enough axis
+// every 1, 2 and 5 x 10^k is.
 func TestLogTicksSpread(t *testing.T) {
 	for _, w := range []vg.Length{40, 80, 120, 200, 2000} {
 		for _, lo := range []float64{3, 40, 700, 5000} {
-			for _, decades := range []float64{0.7, 1.5, 2.4, 4} {
+			for _, decades := range []float64{0.7, 1.5, 2.4, 4, 6.3} {
 				hi := lo * math.Pow(10, decades)
 				spread := logTicks{W: w, Pt: minFontPt}.Ticks(lo, hi)
 				all := logTicks{}.Ticks(lo, hi)
 				var xs []float64
 				var labels []string
+				decX, decLabel := 0.0, "" // the last power of ten labelled
 				for i, tk := range spread {
 					if tk.Value != all[i].Value {
 						t.Fatalf("[%g, %g]: ticks differ", lo, hi)
 					}
 					isDecade := tk.Value == math.Pow10(int(math.Round(math.Log10(tk.Value))))
-					if isDecade && all[i].Label != "" && tk.Label == "" {
-						t.Errorf("w=%g [%g, %g]: power of ten %g unlabelled", w, lo, hi, tk.Value)
+					x := math.Log10(tk.Value/lo) / math.Log10(hi/lo) * float64(w)
+					if isDecade && all[i].Label != "" {
+						// A power of ten goes unlabelled only where it would
+						// touch the power of ten labelled before it.
+						touches := decLabel != "" && vg.Length(x-decX) < (textWidth(decLabel, minFontPt)+textWidth(all[i].Label, minFontPt))/2+vg.Points(3)
+						if tk.Label == "" && !touches {
+							t.Errorf("w=%g [%g, %g]: power of ten %g unlabelled", w, lo, hi, tk.Value)
+						}
+						if tk.Label != "" {
+							decX, decLabel = x, tk.Label
+						}
 					}
 					if tk.Label != "" {
-						xs = append(xs, math.Log10(tk.Value/lo)/math.Log10(hi/lo)*float64(w))
+						xs = append(xs, x)
 						labels = append(labels, tk.Label)
 					}
 				}
 				for i := 1; i < len(xs); i++ {
-					// Two powers of ten are kept however close (a range
-					// too wide for its axis); any other pair keeps apart.
+					// Every two labels keep 3 pt apart, powers of ten too:
+					// on a range of 6.3 decades "10000" and "100000"
+					// overlapped on a 150 pt axis.
 					need := (textWidth(labels[i-1], minFontPt)+textWidth(labels[i], minFontPt))/2 + vg.Points(3)
-					if vg.Length(xs[i]-xs[i-1]) < need && !(isPow10(labels[i-1]) && isPow10(labels[i])) {
+					if vg.Length(xs[i]-xs[i-1]) < need {
 						t.Errorf("w=%g [%g, %g]: labels %s and %s %.1f pt apart", w, lo, hi, labels[i-1], labels[i], xs[i]-xs[i-1])
 					}
 				}
