@@ -5,6 +5,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -30,10 +31,43 @@ var namedColors = []color.RGBA{lineColors[0], lineColors[1], lineColors[2], line
 var maxNamed = len(namedColors)
 
 // outline is the boundary of an extent on the preview grid in data
-// coordinates: closed or open polylines, drawn with one line style.
+// coordinates: closed or open polylines, drawn with one line style; ring,
+// when set, is the centre of a small extent (smallMask), circled so that
+// it can be found.
 type outline struct {
 	lines [][][2]float64 // x, y in the grid CRS
 	ls    draw.LineStyle
+	ring  *[2]float64
+}
+
+// smallRingRadius is the radius of the circle drawn around a small
+// extent's outline (our choice: larger than the omission marks' black
+// ring, 4.2 pt, and in the outline's colour, so the two do not mix).
+const smallRingRadius = 6 * vg.Length(1)
+
+// smallMaskShare is the largest share of the preview's width and height
+// that a small extent's cells span (smallMask): 1/64, under 4 pt on a
+// panel 230 pt wide, where its outline (a tiny square, often under the
+// point marks) could not be seen. Our choice.
+const smallMaskShare = 1.0 / 64
+
+// smallMask reports whether mask (w x h preview cells, row-major) holds
+// cells that all lie within smallMaskShare of the preview's width and of
+// its height, and returns their centre in preview coordinates (column,
+// row from the north-west).
+func smallMask(mask []bool, w, h int) (centre [2]float64, small bool) {
+	c0, r0, c1, r1 := w, h, -1, -1
+	for i, in := range mask {
+		if in {
+			c, r := i%w, i/w
+			c0, r0, c1, r1 = min(c0, c), min(r0, r), max(c1, c), max(r1, r)
+		}
+	}
+	if c1 < 0 {
+		return centre, false
+	}
+	small = float64(c1-c0+1) <= smallMaskShare*float64(w) && float64(r1-r0+1) <= smallMaskShare*float64(h)
+	return [2]float64{float64(c0+c1+1) / 2, float64(r0+r1+1) / 2}, small
 }
 
 // Plot implements plot.Plotter: every polyline of the outline in one
@@ -56,6 +90,17 @@ func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 	c.SetLineStyle(o.ls)
 	c.Stroke(path)
+	if o.ring != nil {
+		q := vg.Point{X: trX(o.ring[0]), Y: trY(o.ring[1])}
+		var ring vg.Path
+		ring.Move(vg.Point{X: q.X + smallRingRadius, Y: q.Y})
+		ring.Arc(q, smallRingRadius, 0, 2*math.Pi)
+		ring.Close()
+		ls := o.ls
+		ls.Dashes = nil // a dashed ring this small reads as dots
+		c.SetLineStyle(ls)
+		c.Stroke(ring)
+	}
 }
 
 // maskEdges returns the boundary of a mask as merged horizontal and
@@ -633,7 +678,11 @@ func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 				l[i] = [2]float64{m.west + l[i][0]*cw, m.north - l[i][1]*ch}
 			}
 		}
-		os = append(os, &outline{lines: lines, ls: key.styles[q]})
+		o := &outline{lines: lines, ls: key.styles[q]}
+		if at, small := smallMask(m.masks[ei], w, h); small {
+			o.ring = &[2]float64{m.west + at[0]*cw, m.north - at[1]*ch}
+		}
+		os = append(os, o)
 	}
 	return os, key
 }
@@ -1027,6 +1076,7 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		c += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
 			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
 	}
+	c += smallExtentWords(r, groups)
 	if len(marks.layers) > 2 {
 		c += " Outlines are drawn over the training and test points and under the omission marks."
 	} else {
@@ -1046,6 +1096,40 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 	}
 	if r.Grid.Geographic {
 		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
+	}
+	return c
+}
+
+// smallExtentWords names, for the caption, the extents the panels of
+// groups draw that are circled (smallMask) and those that cover no cell
+// of the preview, which have no outline at all.
+func smallExtentWords(r *Results, groups []mapGroup) string {
+	_, masks, err := decodePreview(r.Preview)
+	if err != nil {
+		return "" // the drawing reports it
+	}
+	var small, none []string
+	for _, g := range groups {
+		for _, q := range mapKeyOf(r, g).order {
+			ei := g.members[q]
+			if ei >= len(masks) {
+				continue
+			}
+			if _, ok := smallMask(masks[ei], r.Preview.Width, r.Preview.Height); ok {
+				small = append(small, r.Extents[ei].ID)
+			} else if !slices.Contains(masks[ei], true) {
+				none = append(none, r.Extents[ei].ID)
+			}
+		}
+	}
+	var c string
+	if len(small) > 0 {
+		c += fmt.Sprintf(" A circle in its outline's colour marks %s, too small to be seen on the map (at most 1/%.0f of its width and height).", joinList(small), 1/smallMaskShare)
+	}
+	if len(none) > 0 {
+		c += fmt.Sprintf(" %s %s no cell of the coarse copy, so %s no outline here; extents.gpkg holds %s.",
+			joinList(none), map[bool]string{true: "covers", false: "cover"}[len(none) == 1],
+			map[bool]string{true: "it has", false: "they have"}[len(none) == 1], map[bool]string{true: "it", false: "them"}[len(none) == 1])
 	}
 	return c
 }
