@@ -1239,6 +1239,17 @@ func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string, n int) {
 	p.Draw(bc)
 }
 
+// scaleBarLabel writes a scale bar's round length of km kilometres (1, 2
+// or 5 x 10^k): in km from 1 km, below that in metres ("200 m"), where
+// whole kilometres wrote a bar of 200 m as "0 km".
+func scaleBarLabel(km float64) string {
+	if km >= 1 {
+		return fmtTick(km, 0) + " km"
+	}
+	m := km * 1000
+	return fmtTick(m, maxInt(0, -int(math.Floor(math.Log10(m)+1e-9)))) + " m"
+}
+
 // drawScaleBar draws a scale bar of a round length and a north arrow in c,
 // at kmPerPt kilometres per point.
 func drawScaleBar(c draw.Canvas, kmPerPt float64) {
@@ -1261,7 +1272,7 @@ func drawScaleBar(c draw.Canvas, kmPerPt float64) {
 	sty := textStyle(minFontPt)
 	sty.XAlign = draw.XCenter
 	c.FillText(sty, vg.Point{X: x0, Y: y + vg.Points(5)}, "0")
-	c.FillText(sty, vg.Point{X: x0 + length, Y: y + vg.Points(5)}, fmtTick(km, 0)+" km")
+	c.FillText(sty, vg.Point{X: x0 + length, Y: y + vg.Points(5)}, scaleBarLabel(km))
 	// North arrow, to the right of the bar.
 	ax := x0 + length + vg.Points(40)
 	c.FillPolygon(ink, []vg.Point{{X: ax, Y: y + vg.Points(16)}, {X: ax - vg.Points(4), Y: y}, {X: ax, Y: y + vg.Points(4)}, {X: ax + vg.Points(4), Y: y}})

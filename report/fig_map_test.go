@@ -429,3 +429,40 @@ func TestMapSmallExtentCircled(t *testing.T) {
 		t.Errorf("%d circles of radius %v pt drawn, want 1 (user_tiny's)", rings, smallRingRadius.Points())
 	}
 }
+
+// TestScaleBarLabel: the scale bar of a map a few hundred metres across
+// (a grid of 5 m cells) read "0 km" at its end, its length rounded to
+// whole kilometres. Below 1 km it now reads in metres. Lengths are the
+// bar's round values (1, 2 or 5 x 10^k km); labels worked by hand.
+func TestScaleBarLabel(t *testing.T) {
+	for _, tc := range []struct {
+		km   float64
+		want string
+	}{
+		{10000, "10000 km"},
+		{2, "2 km"},
+		{1, "1 km"},
+		{0.5, "500 m"},
+		{0.1, "100 m"},
+		{0.02, "20 m"},
+		{0.001, "1 m"},
+		{0.0005, "0.5 m"},
+	} {
+		if got := scaleBarLabel(tc.km); got != tc.want {
+			t.Errorf("scaleBarLabel(%g) = %q, want %q", tc.km, got, tc.want)
+		}
+	}
+	// The bar itself on a map of 0.0005 km per point (about 100 m of bar
+	// on a 500 pt key).
+	rec := &recorder.Canvas{}
+	drawScaleBar(draw.NewCanvas(rec, 500, 60), 0.0005)
+	var labels []string
+	for _, a := range rec.Actions {
+		if fs, ok := a.(*recorder.FillString); ok {
+			labels = append(labels, fs.String)
+		}
+	}
+	if !slices.Contains(labels, "100 m") {
+		t.Errorf("scale bar labels %q, want one of 100 m", labels)
+	}
+}
