@@ -393,13 +393,22 @@ var reRotatedText = regexp.MustCompile(`<g transform="rotate\(90\)">\s*<text x="
 // font's ascent, 7.2 pt at 8 pt) began 0.8 pt outside the figure: past
 // the SVG's view box in a browser (seen in the report of every run with a
 // null, which the browser test's sample has none of) and three pixels
-// from the PNG's edge. The other figures keep 2 pt of room. Every
-// vertical axis title of every figure now starts at least 1 pt (our
-// choice) inside the left edge.
+// from the PNG's edge; so did the maps' "y (km)" on a projected grid.
+// The other figures keep 2 pt of room. Every vertical axis title of
+// every figure now starts at least 1 pt (our choice) inside the left
+// edge.
 func TestAxisTitlesClearOfLeftEdge(t *testing.T) {
 	// The sample has no null of the user's; gapResults draws the
 	// model-minus-null figure of two models and one null.
 	figs := append(figures(analyzedSample(t)), nullGapFigures(gapResults(2, 1))...)
+	// The maps of a projected grid have a vertical axis title, "y (km)"
+	// (a grid of 5 m cells in EPSG:3035, 400 m across).
+	proj := analyzedSample(t)
+	proj.Grid = Grid{CRS: "EPSG:3035", Unit: "metre", UnitM: 1}
+	proj.Preview.Bounds = [4]float64{4321000, 3209700, 4321400, 3210000}
+	if f, ok := mapFigure(proj); ok {
+		figs = append(figs, f)
+	}
 	seen := map[string]bool{}
 	for _, f := range figs {
 		svg, err := render(f, "svg")
@@ -416,7 +425,7 @@ func TestAxisTitlesClearOfLeftEdge(t *testing.T) {
 			}
 		}
 	}
-	for _, name := range []string{nullFigureName, rocFigureName} {
+	for _, name := range []string{nullFigureName, rocFigureName, mapFigureName} {
 		if !seen[name] {
 			t.Errorf("figure %s: no vertical axis title found (the sample must draw it)", name)
 		}

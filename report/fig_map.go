@@ -824,6 +824,9 @@ func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
 func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
 	legC, mapC := splitBottom(cell, legendH)
 	mapC.Max.X -= edgePad
+	// The 2 pt the tiled figures keep on their left (drawTiles' PadLeft):
+	// a projected grid's "y (km)" began 0.8 pt outside the figure.
+	mapC.Min.X += vg.Points(2)
 	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
 	var img image.Image = m.pal
 	if _, raster := cell.Canvas.(*pngCanvas); raster {
