@@ -581,6 +581,7 @@ type mapScene struct {
 	west, south, east, north float64
 	aspect                   float64 // km per unit in x over km per unit in y
 	marks                    mapMarks
+	cut                      bool // outlines' corners cut (cornersCut)
 	// outlines and keys are the outlines (in drawing order) and the key
 	// of each panel (traceOutlines), by the panel's place in the groups
 	// the scene was made for.
@@ -608,7 +609,7 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup, cellW vg.Length)
 		img.Set(i%pv.Width, i/pv.Width, ramp[v])
 		pal.SetColorIndex(i%pv.Width, i/pv.Width, v)
 	}
-	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
+	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks, cut: cornersCut(cellW, pv.Width)}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
 	for _, g := range groups {
 		os, key := m.traceOutlines(g)
@@ -671,7 +672,9 @@ func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 		}
 		lines := edgeLines(maskEdges(m.masks[ei], w, h))
 		for k := range lines {
-			lines[k] = cutCorners(lines[k])
+			if m.cut {
+				lines[k] = cutCorners(lines[k])
+			}
 		}
 		for _, l := range lines {
 			for i := range l {
@@ -732,6 +735,22 @@ func edgeLines(segs [][4]float64) [][][2]float64 {
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// maxCutCellPt is the largest a preview cell may be on a panel, in
+// points, for outlines to have their corners cut (cornersCut): 3 pt
+// (about 1 mm in print, our choice) and larger, a cell is seen as a
+// square and its edges are the extent's true edge.
+const maxCutCellPt = 3
+
+// cornersCut reports whether outlines on panels cellW wide of a preview
+// w cells across have their corners cut (cutCorners): only where a cell
+// is under maxCutCellPt, so that a staircase of cells reads as the line
+// it stands for. On a coarse grid (6 x 5 cells of 1°) cutting drew a
+// region made of whole cells, a rectangle, as an octagon half a cell
+// inside its corners.
+func cornersCut(cellW vg.Length, w int) bool {
+	return w > 0 && cellW/vg.Length(w) < maxCutCellPt
 }
 
 // cutCorners smooths a polyline of axis-parallel runs with whole-number
@@ -1009,7 +1028,7 @@ func mapFigure(r *Results) (figure, bool) {
 		}
 	}
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
-	f.Caption = mapCaption(r, model, groups, all, marks, left)
+	f.Caption = mapCaption(r, model, groups, all, marks, left, cornersCut(cellW, pv.Width))
 	// One scene for the three formats (they are drawn at the same time):
 	// the preview decoded and every extent's outline traced once.
 	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups, cellW) })
@@ -1042,7 +1061,7 @@ func mapFigure(r *Results) (figure, bool) {
 // outlines, the background (model's suitability) and the marks, with
 // notes on thinned outlines and crowded marks, the panels left off the
 // page (left of all), and the scale bar's parallel.
-func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int) string {
+func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int, cut bool) string {
 	pv := r.Preview
 	south, north := pv.Bounds[1], pv.Bounds[3]
 	// Name only the anchors a panel draws: the whole raster is not drawn
@@ -1070,7 +1089,7 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; %s"+
-		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", anchors, maxNamed, model, omissionWords(r, model))
+		"%s", anchors, maxNamed, model, omissionWords(r, model), outlineWords(cut))
 	thinned := 0
 	for _, g := range groups {
 		thinned += mapKeyOf(r, g).thinned
@@ -1101,6 +1120,15 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
 	}
 	return c
+}
+
+// outlineWords says how the outlines follow the coarse copy's cells:
+// with their corners cut (cornersCut) or along the cells' edges.
+func outlineWords(cut bool) string {
+	if cut {
+		return "Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells."
+	}
+	return "Outlines follow the edges of the coarse copy's cells, which are large enough on the map to be seen."
 }
 
 // smallExtentWords names, for the caption, the extents the panels of

@@ -466,3 +466,77 @@ func TestScaleBarLabel(t *testing.T) {
 		t.Errorf("scale bar labels %q, want one of 100 m", labels)
 	}
 }
+
+// TestMapCoarseCellsNotCut: outlines had every corner cut by half a
+// preview cell, so on a coarse grid (6 x 5 cells of 1°, each about 80 pt
+// on the map) a base region made of whole cells, a rectangle, was drawn
+// as an octagon half a cell inside its corners. Corners are now cut only
+// where a cell is under maxCutCellPt on the panel (the demo's 240-cell
+// preview, about 1 pt a cell, still is), and the caption says which.
+func TestMapCoarseCellsNotCut(t *testing.T) {
+	base, _ := anchorStyle(vocab.KindBase)
+	for _, tc := range []struct {
+		w, h    int
+		cut     bool
+		caption string
+	}{
+		{6, 5, false, "Outlines follow the edges of the coarse copy's cells"},
+		{240, 200, true, "Outlines follow the coarse copy's cells with their corners cut"},
+	} {
+		r := manyExtents(t, 10)
+		var keep []Extent
+		for _, e := range r.Extents {
+			if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+				keep = append(keep, e)
+			}
+		}
+		r.Extents = keep
+		// base: the middle third of the cells in each direction; the
+		// whole raster: every cell.
+		masks := make([][]bool, len(keep))
+		for k, e := range keep {
+			masks[k] = make([]bool, tc.w*tc.h)
+			for i := range masks[k] {
+				c, row := i%tc.w, i/tc.w
+				masks[k][i] = e.Kind == vocab.KindWholeRaster || (c >= tc.w/3 && c < 2*tc.w/3 && row >= tc.h/3 && row < 2*tc.h/3)
+			}
+		}
+		r.Preview = NewPreview(tc.w, tc.h, r.Preview.Bounds, make([]float64, tc.w*tc.h), 0, 1, masks)
+		f, ok := mapFigure(r)
+		if !ok {
+			t.Fatal("no map figure")
+		}
+		if !strings.Contains(f.Caption, tc.caption) {
+			t.Errorf("%d x %d cells: caption lacks %q", tc.w, tc.h, tc.caption)
+		}
+		rec := &recorder.Canvas{}
+		if err := f.draw(draw.NewCanvas(rec, f.W, f.H)); err != nil {
+			t.Fatal(err)
+		}
+		var current color.Color
+		diagonal, segments := false, 0
+		for _, a := range rec.Actions {
+			switch a := a.(type) {
+			case *recorder.SetColor:
+				current = a.Color
+			case *recorder.Stroke:
+				if current != base.Color {
+					continue
+				}
+				for k := 1; k < len(a.Path); k++ {
+					p, q := a.Path[k-1].Pos, a.Path[k].Pos
+					if a.Path[k].Type == vg.LineComp {
+						segments++
+						diagonal = diagonal || (math.Abs(float64(q.X-p.X)) > 1e-6 && math.Abs(float64(q.Y-p.Y)) > 1e-6)
+					}
+				}
+			}
+		}
+		if segments == 0 {
+			t.Fatalf("%d x %d cells: no outline of base drawn", tc.w, tc.h)
+		}
+		if diagonal != tc.cut {
+			t.Errorf("%d x %d cells: base outline has diagonal segments %v, want %v", tc.w, tc.h, diagonal, tc.cut)
+		}
+	}
+}
