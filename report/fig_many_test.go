@@ -706,10 +706,12 @@ func checkedMapSVG(t *testing.T, r *Results, what string) (figure, []byte) {
 // (three nulls) drew the first and third in the same grey, dotted, with
 // the same open circles, so a reader could not tell which line was which
 // (seen in the metrics figure of a study with two --null rasters). Every
-// null of a run with up to six differs from every other in grey or marker.
+// null of a run with up to ten (six --null rasters and the distance-only
+// null drew that null, the seventh, as the first) differs from every
+// other in grey or marker.
 func TestNullsTellApart(t *testing.T) {
 	seen := map[string]int{}
-	for k := range 6 {
+	for k := range 10 {
 		ls, gs := nullLineStyle(k)
 		key := fmt.Sprintf("%s %T", svgColor(ls.Color), gs.Shape)
 		if j, ok := seen[key]; ok {
@@ -717,7 +719,7 @@ func TestNullsTellApart(t *testing.T) {
 		}
 		seen[key] = k
 		switch gs.Shape.(type) {
-		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph:
+		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph, draw.PlusGlyph, draw.CrossGlyph:
 		default:
 			t.Errorf("null %d's marker %T is not hollow", k, gs.Shape)
 		}

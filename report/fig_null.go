@@ -164,6 +164,12 @@ var gapDashes = [][]vg.Length{
 	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
 	{vg.Points(9), vg.Points(3)},
 	{vg.Points(5), vg.Points(2), vg.Points(1.5), vg.Points(2), vg.Points(1.5), vg.Points(2)},
+	// Four more, so that ten nulls differ (six --null rasters and the
+	// distance-only null drew the seventh, that null, as the first).
+	{vg.Points(1.5), vg.Points(4.5)},
+	{vg.Points(12), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(3), vg.Points(4)},
+	{vg.Points(9), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
 }
 
 // gapNulls counts the nulls with an AUC difference in the

@@ -92,12 +92,12 @@ func TestNullGapPanelKeepsHeight(t *testing.T) {
 // TestNullGapPairsTellApart: two nulls besides the first were both drawn
 // dotted, and a model whose own pattern is dotted (the third) drew all its
 // pairs alike, so a reader could not tell which null a line subtracts.
-// Every pair of models and nulls (up to six of each) differs in colour,
+// Every pair of six models and ten nulls differs in colour,
 // marker or line pattern.
 func TestNullGapPairsTellApart(t *testing.T) {
 	seen := map[string]string{}
 	for i := range 6 {
-		for j := range 6 {
+		for j := range 10 {
 			ls := lineStyle(modelColor(i), 1, gapDash(j))
 			key := fmt.Sprintf("%s %T %v", svgColor(ls.Color), markerStyle(i).Shape, ls.Dashes)
 			pair := fmt.Sprint(i, "-", j)
@@ -119,7 +119,7 @@ func TestNullGapPairsTellApart(t *testing.T) {
 		}
 	}
 	// Patterns that differ only by a fraction of a point read as one.
-	for a := range 6 {
+	for a := range 10 {
 		for b := range a {
 			da, db := gapDash(a), gapDash(b)
 			if len(da) == len(db) {
