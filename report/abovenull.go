@@ -373,12 +373,41 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 	return out
 }
 
+// aboveNullCounts is the headline's sentence on the nulls when they and
+// the models make more than maxHeadlinePairs pairs: the pairs counted by
+// their reading on the base extent (above, within noise, below, not
+// told), each named under Analysis.
+func aboveNullCounts(gaps []baseGap) string {
+	var above, within, below, untold int
+	for _, bg := range gaps {
+		switch bg.an.BaseReading {
+		case ReadingAbove:
+			above++
+		case ReadingBelow:
+			below++
+		case ReadingTooFew, ReadingTooFewResamples:
+			untold++
+		default:
+			within++
+		}
+	}
+	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d, within noise in %d and below in %d",
+		gaps[0].an.BaseExtent, len(gaps), above, within, below)
+	if untold > 0 {
+		out += fmt.Sprintf(", not told in %d (too few common test points or resamples, our cut-offs)", untold)
+	}
+	return out + " (each pair and how its gap moves across the extents under Analysis, Model minus null)."
+}
+
 // aboveNullHeadline is the headline's sentence on the nulls: AUC only, one
 // clause per model and null, ending with how the gap moves from the
 // smallest to the largest extent (named as such, as the summary does).
 func aboveNullHeadline(s *Sensitivity) string {
 	var parts []string
 	nullsNamed := map[string]bool{}
+	if gaps := s.baseAUCGaps(); len(gaps) > maxHeadlinePairs {
+		return aboveNullCounts(gaps)
+	}
 	for _, bg := range s.baseAUCGaps() {
 		an, g := bg.an, bg.g
 		nullsNamed[an.Null] = true

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 
@@ -143,5 +144,43 @@ func TestAboveNullReadings(t *testing.T) {
 		if an.Metric == "auc" && !strings.Contains(an.Sentence, "On "+base+", AUC of "+model+" is below "+DistanceNullName+" (distance-only null) beyond noise: -0.100") {
 			t.Errorf("sentence: %s", an.Sentence)
 		}
+	}
+}
+
+// TestHeadlineCountsManyPairs: the headline named every AUC comparison of
+// two models and every model-null pair, so eight models and three nulls
+// (seen in a study) gave a summary of 28 comparisons and 24 null clauses,
+// thousands of words above the figures. Past maxHeadlinePairs (six, our
+// choice) it counts them instead and points to the Analysis, which names
+// each; up to six it names them as before.
+func TestHeadlineCountsManyPairs(t *testing.T) {
+	rk := func(better, worse, n int) ModelRanking {
+		return ModelRanking{Metric: "auc", Model: "a", Other: "b", Better: better, Worse: worse, Extents: n}
+	}
+	// Counts worked by hand: two pairs differ on all 14, one on 4, one
+	// on none.
+	got := rankingCounts([]ModelRanking{rk(14, 0, 14), rk(10, 4, 14), rk(3, 1, 14), rk(0, 0, 14)})
+	if want := "of the 4 pairs of models, 2 differ beyond noise on every extent compared, 1 on some and 1 on none (each pair under Analysis, Models compared extent by extent)"; got != want {
+		t.Errorf("rankingCounts:\n got %s\nwant %s", got, want)
+	}
+
+	nullPairs := func(n int) *Sensitivity {
+		s := &Sensitivity{}
+		readings := []string{ReadingAbove, ReadingAbove, ReadingBelow, ReadingNotAbove, ReadingTooFew, ReadingAbove, ReadingBelow, ReadingNotAbove}
+		for k := range n {
+			s.AboveNull = append(s.AboveNull, AboveNull{Metric: "auc", Model: fmt.Sprint("m", k), Null: DistanceNullName, BaseExtent: "base",
+				BaseReading: readings[k], Gaps: []NullGap{{Extent: "base", Defined: true, Diff: 0.05, Low: 0.01, High: 0.09}}})
+		}
+		return s
+	}
+	many := aboveNullHeadline(nullPairs(8))
+	if want := " Against the nulls, on base: of the 8 pairs of a model and a null, the model is above the null beyond noise (AUC) in 3, within noise in 2 and below in 2, not told in 1"; !strings.HasPrefix(many, want) {
+		t.Errorf("8 pairs:\n got %s\nwant it to start %s", many, want)
+	}
+	if strings.Contains(many, "m0 is above") {
+		t.Errorf("8 pairs: a pair is named one by one: %s", many)
+	}
+	if few := aboveNullHeadline(nullPairs(6)); !strings.Contains(few, "m0 is above "+DistanceNullName+" beyond noise on base") {
+		t.Errorf("6 pairs: not named one by one: %s", few)
 	}
 }

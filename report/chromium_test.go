@@ -396,3 +396,57 @@ func TestExplorerRoundsAsTheTables(t *testing.T) {
 		t.Errorf("explorer's sentence does not read %s: %s", want, regexp.MustCompile(`<p id="teach-sentence">[^<]*`).FindString(d))
 	}
 }
+
+// TestExplorerModelNamedLikeAProperty: model names may be any of letters,
+// digits, '_', '-' and '.', so "__proto__" is one. The explorer kept the
+// models' labels in a plain object, where labels["__proto__"] is the
+// object's prototype: its menu listed that model as "[object Object]"
+// and its sentence read "On base, ... [object Object] has AUC 0.815"
+// (seen in a run with --model __proto__=...). The sample's model "good"
+// renamed "__proto__" must read as itself in the menu and the sentence.
+func TestExplorerModelNamedLikeAProperty(t *testing.T) {
+	bin := findChromium()
+	if bin == "" {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
+		}
+		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
+	}
+	raw, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	const model = "__proto__"
+	renamed := bytes.ReplaceAll(raw, []byte(`"good"`), []byte(`"`+model+`"`))
+	src := filepath.Join(t.TempDir(), "results.json")
+	if err := os.WriteFile(src, renamed, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := Load(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	page := "file://" + filepath.Join(dir, "report.html") + "#extent=base&model=" + url.QueryEscape(model)
+	dom, _ := runChromium(t, bin, chromiumArgs(t.TempDir(), "--virtual-time-budget=5000", "--dump-dom", page))
+	d := string(dom)
+	if v, ok := attr(d, `<html[^>]*>`, "data-errors"); !ok || v != "" {
+		t.Errorf("script errors: %q", v)
+	}
+	if !strings.Contains(d, `<option value="`+model+`">`+model+`</option>`) {
+		t.Errorf("model menu: %s", regexp.MustCompile(`<select id="sel-model">.*?</select>`).FindString(d))
+	}
+	sentence := regexp.MustCompile(`<p id="teach-sentence">[^<]*`).FindString(d)
+	if !strings.Contains(sentence, "model "+model+" has AUC") {
+		t.Errorf("explorer's sentence does not name model %s: %s", model, sentence)
+	}
+	if strings.Contains(d, "[object Object]") {
+		t.Error(`the page shows "[object Object]"`, regexp.MustCompile(`(?s).{300}\[object Object\].{100}`).FindString(d))
+	}
+}

@@ -2,16 +2,19 @@ package report
 
 import (
 	"fmt"
+	"html"
 	"image"
 	"image/color"
 	"image/png"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"slices"
 	"strings"
 	"testing"
 
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/recorder"
@@ -377,4 +380,54 @@ func TestMapUnscoredModel(t *testing.T) {
 	// The sample as it is: the marks and their words.
 	f, _ = mapFigure(analyzedSample(t))
 	checkWords(t, "sample caption", f.Caption, []string{"omits at the 10th percentile", "under the omission marks"}, []string{"no omission marks"})
+}
+
+// reRotatedText is a vertical axis title of a gonum SVG: text turned a
+// quarter turn, so that its y attribute is its baseline's distance from
+// the figure's left edge and the glyphs' tops point left.
+var reRotatedText = regexp.MustCompile(`<g transform="rotate\(90\)">\s*<text x="[^"]+" y="([^"]+)" transform="scale\(1, -1\)"\s*style="[^"]*font-size:([0-9.]+)px[^"]*">([^<]*)</text>`)
+
+// TestAxisTitlesClearOfLeftEdge: the model-minus-null figure drew its
+// vertical axis title ("AUC difference (model − null)") with its baseline
+// 6.5 pt from the figure's left edge, so the top of its glyphs (the
+// font's ascent, 7.2 pt at 8 pt) began 0.8 pt outside the figure: past
+// the SVG's view box in a browser (seen in the report of every run with a
+// null, which the browser test's sample has none of) and three pixels
+// from the PNG's edge; so did the maps' "y (km)" on a projected grid.
+// The other figures keep 2 pt of room. Every vertical axis title of
+// every figure now starts at least 1 pt (our choice) inside the left
+// edge.
+func TestAxisTitlesClearOfLeftEdge(t *testing.T) {
+	// The sample has no null of the user's; gapResults draws the
+	// model-minus-null figure of two models and one null.
+	figs := append(figures(analyzedSample(t)), nullGapFigures(gapResults(2, 1))...)
+	// The maps of a projected grid have a vertical axis title, "y (km)"
+	// (a grid of 5 m cells in EPSG:3035, 400 m across).
+	proj := analyzedSample(t)
+	proj.Grid = Grid{CRS: "EPSG:3035", Unit: "metre", UnitM: 1}
+	proj.Preview.Bounds = [4]float64{4321000, 3209700, 4321400, 3210000}
+	if f, ok := mapFigure(proj); ok {
+		figs = append(figs, f)
+	}
+	seen := map[string]bool{}
+	for _, f := range figs {
+		svg, err := render(f, "svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, m := range reRotatedText.FindAllStringSubmatch(string(svg), -1) {
+			base, size := atof(t, m[1]), atof(t, m[2])
+			seen[f.Name] = true
+			face := font.DefaultCache.Lookup(sansFont, vg.Points(size))
+			asc := face.Extents().Ascent.Points()
+			if left := base - asc; left < 1 {
+				t.Errorf("%s: axis title %q starts %.2f pt from the left edge, want at least 1", f.Name, html.UnescapeString(m[3]), left)
+			}
+		}
+	}
+	for _, name := range []string{nullFigureName, rocFigureName, mapFigureName} {
+		if !seen[name] {
+			t.Errorf("figure %s: no vertical axis title found (the sample must draw it)", name)
+		}
+	}
 }

@@ -228,14 +228,16 @@ func TestManyExtentFiguresSVG(t *testing.T) {
 			count[tx.s]++
 		}
 		// At 256 the eight user extents and the hull share the panel of
-		// extents in no chain, more than maxNamed: an area bar, no names.
+		// extents in no chain, more than maxNamed: an area bar, no names,
+		// in 1000 km² as the other area axes (2,600 to 31,200 km²; the
+		// bar was labelled in km², "20000", before areaAxis set its unit).
 		hull, areaBars := 1, 0
 		if n > 200 {
 			hull, areaBars = 0, 1
 		}
-		if count["base"] != 1 || count["whole_raster"] != 1 || count["hull"] != hull || count["buffer distance (km)"] != 2 || count["extent area (km²)"] != areaBars {
+		if count["base"] != 1 || count["whole_raster"] != 1 || count["hull"] != hull || count["buffer distance (km)"] != 2 || count["extent area (1000 km²)"] != areaBars {
 			t.Errorf("%d extents: keys: base %d, whole_raster %d, hull %d, distance bars %d, area bars %d", n,
-				count["base"], count["whole_raster"], count["hull"], count["buffer distance (km)"], count["extent area (km²)"])
+				count["base"], count["whole_raster"], count["hull"], count["buffer distance (km)"], count["extent area (1000 km²)"])
 		}
 		if !strings.Contains(f.Caption, "are not drawn here") {
 			t.Errorf("%d extents: caption does not say that outlines were thinned: %s", n, f.Caption)
@@ -539,35 +541,47 @@ func TestROCNullPanelShaded(t *testing.T) {
 }
 
 // TestLogTicksSpread: with an axis length, log tick labels never come
-// within 3 pt of each other (but two powers of ten, always labelled), and
-// on a long enough axis every 1, 2 and 5 x 10^k is.
+// within 3 pt of each other, powers of ten included (each labelled unless
+// it would touch the one labelled before it), and on a long enough axis
+// every 1, 2 and 5 x 10^k is.
 func TestLogTicksSpread(t *testing.T) {
 	for _, w := range []vg.Length{40, 80, 120, 200, 2000} {
 		for _, lo := range []float64{3, 40, 700, 5000} {
-			for _, decades := range []float64{0.7, 1.5, 2.4, 4} {
+			for _, decades := range []float64{0.7, 1.5, 2.4, 4, 6.3} {
 				hi := lo * math.Pow(10, decades)
 				spread := logTicks{W: w, Pt: minFontPt}.Ticks(lo, hi)
 				all := logTicks{}.Ticks(lo, hi)
 				var xs []float64
 				var labels []string
+				decX, decLabel := 0.0, "" // the last power of ten labelled
 				for i, tk := range spread {
 					if tk.Value != all[i].Value {
 						t.Fatalf("[%g, %g]: ticks differ", lo, hi)
 					}
 					isDecade := tk.Value == math.Pow10(int(math.Round(math.Log10(tk.Value))))
-					if isDecade && all[i].Label != "" && tk.Label == "" {
-						t.Errorf("w=%g [%g, %g]: power of ten %g unlabelled", w, lo, hi, tk.Value)
+					x := math.Log10(tk.Value/lo) / math.Log10(hi/lo) * float64(w)
+					if isDecade && all[i].Label != "" {
+						// A power of ten goes unlabelled only where it would
+						// touch the power of ten labelled before it.
+						touches := decLabel != "" && vg.Length(x-decX) < (textWidth(decLabel, minFontPt)+textWidth(all[i].Label, minFontPt))/2+vg.Points(3)
+						if tk.Label == "" && !touches {
+							t.Errorf("w=%g [%g, %g]: power of ten %g unlabelled", w, lo, hi, tk.Value)
+						}
+						if tk.Label != "" {
+							decX, decLabel = x, tk.Label
+						}
 					}
 					if tk.Label != "" {
-						xs = append(xs, math.Log10(tk.Value/lo)/math.Log10(hi/lo)*float64(w))
+						xs = append(xs, x)
 						labels = append(labels, tk.Label)
 					}
 				}
 				for i := 1; i < len(xs); i++ {
-					// Two powers of ten are kept however close (a range
-					// too wide for its axis); any other pair keeps apart.
+					// Every two labels keep 3 pt apart, powers of ten too:
+					// on a range of 6.3 decades "10000" and "100000"
+					// overlapped on a 150 pt axis.
 					need := (textWidth(labels[i-1], minFontPt)+textWidth(labels[i], minFontPt))/2 + vg.Points(3)
-					if vg.Length(xs[i]-xs[i-1]) < need && !(isPow10(labels[i-1]) && isPow10(labels[i])) {
+					if vg.Length(xs[i]-xs[i-1]) < need {
 						t.Errorf("w=%g [%g, %g]: labels %s and %s %.1f pt apart", w, lo, hi, labels[i-1], labels[i], xs[i]-xs[i-1])
 					}
 				}
@@ -692,10 +706,12 @@ func checkedMapSVG(t *testing.T, r *Results, what string) (figure, []byte) {
 // (three nulls) drew the first and third in the same grey, dotted, with
 // the same open circles, so a reader could not tell which line was which
 // (seen in the metrics figure of a study with two --null rasters). Every
-// null of a run with up to six differs from every other in grey or marker.
+// null of a run with up to ten (six --null rasters and the distance-only
+// null drew that null, the seventh, as the first) differs from every
+// other in grey or marker.
 func TestNullsTellApart(t *testing.T) {
 	seen := map[string]int{}
-	for k := range 6 {
+	for k := range 10 {
 		ls, gs := nullLineStyle(k)
 		key := fmt.Sprintf("%s %T", svgColor(ls.Color), gs.Shape)
 		if j, ok := seen[key]; ok {
@@ -703,7 +719,7 @@ func TestNullsTellApart(t *testing.T) {
 		}
 		seen[key] = k
 		switch gs.Shape.(type) {
-		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph:
+		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph, draw.PlusGlyph, draw.CrossGlyph:
 		default:
 			t.Errorf("null %d's marker %T is not hollow", k, gs.Shape)
 		}

@@ -5,6 +5,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -30,10 +31,43 @@ var namedColors = []color.RGBA{lineColors[0], lineColors[1], lineColors[2], line
 var maxNamed = len(namedColors)
 
 // outline is the boundary of an extent on the preview grid in data
-// coordinates: closed or open polylines, drawn with one line style.
+// coordinates: closed or open polylines, drawn with one line style; ring,
+// when set, is the centre of a small extent (smallMask), circled so that
+// it can be found.
 type outline struct {
 	lines [][][2]float64 // x, y in the grid CRS
 	ls    draw.LineStyle
+	ring  *[2]float64
+}
+
+// smallRingRadius is the radius of the circle drawn around a small
+// extent's outline (our choice: larger than the omission marks' black
+// ring, 4.2 pt, and in the outline's colour, so the two do not mix).
+const smallRingRadius = 6 * vg.Length(1)
+
+// smallMaskShare is the largest share of the preview's width and height
+// that a small extent's cells span (smallMask): 1/64, under 4 pt on a
+// panel 230 pt wide, where its outline (a tiny square, often under the
+// point marks) could not be seen. Our choice.
+const smallMaskShare = 1.0 / 64
+
+// smallMask reports whether mask (w x h preview cells, row-major) holds
+// cells that all lie within smallMaskShare of the preview's width and of
+// its height, and returns their centre in preview coordinates (column,
+// row from the north-west).
+func smallMask(mask []bool, w, h int) (centre [2]float64, small bool) {
+	c0, r0, c1, r1 := w, h, -1, -1
+	for i, in := range mask {
+		if in {
+			c, r := i%w, i/w
+			c0, r0, c1, r1 = min(c0, c), min(r0, r), max(c1, c), max(r1, r)
+		}
+	}
+	if c1 < 0 {
+		return centre, false
+	}
+	small = float64(c1-c0+1) <= smallMaskShare*float64(w) && float64(r1-r0+1) <= smallMaskShare*float64(h)
+	return [2]float64{float64(c0+c1+1) / 2, float64(r0+r1+1) / 2}, small
 }
 
 // Plot implements plot.Plotter: every polyline of the outline in one
@@ -56,6 +90,17 @@ func (o *outline) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 	c.SetLineStyle(o.ls)
 	c.Stroke(path)
+	if o.ring != nil {
+		q := vg.Point{X: trX(o.ring[0]), Y: trY(o.ring[1])}
+		var ring vg.Path
+		ring.Move(vg.Point{X: q.X + smallRingRadius, Y: q.Y})
+		ring.Arc(q, smallRingRadius, 0, 2*math.Pi)
+		ring.Close()
+		ls := o.ls
+		ls.Dashes = nil // a dashed ring this small reads as dots
+		c.SetLineStyle(ls)
+		c.Stroke(ring)
+	}
 }
 
 // maskEdges returns the boundary of a mask as merged horizontal and
@@ -278,8 +323,15 @@ func mapKeyOf(r *Results, g mapGroup) mapKey {
 		rk := &rampKey{label: "buffer distance (km)", lo: math.Inf(1), hi: math.Inf(-1)}
 		val := func(e Extent) float64 { d, _ := extentDistance(e); return d }
 		if !allDist {
-			rk.label, rk.log = "extent area (km²)", true
-			val = func(e Extent) float64 { return e.AreaKm2 }
+			// The area bar counts in the unit of the other area axes
+			// (areaAxis), not in km² at any size ("2000000").
+			most := 0.0
+			for _, q := range rest {
+				most = math.Max(most, r.Extents[g.members[q]].AreaKm2)
+			}
+			div, unit := areaAxis(most)
+			rk.label, rk.log = unit, true
+			val = func(e Extent) float64 { return e.AreaKm2 / div }
 		}
 		vals := map[int]float64{}
 		for _, q := range rest {
@@ -529,6 +581,7 @@ type mapScene struct {
 	west, south, east, north float64
 	aspect                   float64 // km per unit in x over km per unit in y
 	marks                    mapMarks
+	cut                      bool // outlines' corners cut (cornersCut)
 	// outlines and keys are the outlines (in drawing order) and the key
 	// of each panel (traceOutlines), by the panel's place in the groups
 	// the scene was made for.
@@ -556,7 +609,7 @@ func newMapScene(r *Results, marks mapMarks, groups []mapGroup, cellW vg.Length)
 		img.Set(i%pv.Width, i/pv.Width, ramp[v])
 		pal.SetColorIndex(i%pv.Width, i/pv.Width, v)
 	}
-	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks}
+	m := &mapScene{r: r, img: blockScale(img, cellW), pal: pal, masks: masks, aspect: mapAspect(r), marks: marks, cut: cornersCut(cellW, pv.Width)}
 	m.west, m.south, m.east, m.north = pv.Bounds[0], pv.Bounds[1], pv.Bounds[2], pv.Bounds[3]
 	for _, g := range groups {
 		os, key := m.traceOutlines(g)
@@ -619,14 +672,20 @@ func (m *mapScene) traceOutlines(g mapGroup) ([]*outline, mapKey) {
 		}
 		lines := edgeLines(maskEdges(m.masks[ei], w, h))
 		for k := range lines {
-			lines[k] = cutCorners(lines[k])
+			if m.cut {
+				lines[k] = cutCorners(lines[k])
+			}
 		}
 		for _, l := range lines {
 			for i := range l {
 				l[i] = [2]float64{m.west + l[i][0]*cw, m.north - l[i][1]*ch}
 			}
 		}
-		os = append(os, &outline{lines: lines, ls: key.styles[q]})
+		o := &outline{lines: lines, ls: key.styles[q]}
+		if at, small := smallMask(m.masks[ei], w, h); small {
+			o.ring = &[2]float64{m.west + at[0]*cw, m.north - at[1]*ch}
+		}
+		os = append(os, o)
 	}
 	return os, key
 }
@@ -676,6 +735,22 @@ func edgeLines(segs [][4]float64) [][][2]float64 {
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// maxCutCellPt is the largest a preview cell may be on a panel, in
+// points, for outlines to have their corners cut (cornersCut): 3 pt
+// (about 1 mm in print, our choice) and larger, a cell is seen as a
+// square and its edges are the extent's true edge.
+const maxCutCellPt = 3
+
+// cornersCut reports whether outlines on panels cellW wide of a preview
+// w cells across have their corners cut (cutCorners): only where a cell
+// is under maxCutCellPt, so that a staircase of cells reads as the line
+// it stands for. On a coarse grid (6 x 5 cells of 1°) cutting drew a
+// region made of whole cells, a rectangle, as an octagon half a cell
+// inside its corners.
+func cornersCut(cellW vg.Length, w int) bool {
+	return w > 0 && cellW/vg.Length(w) < maxCutCellPt
 }
 
 // cutCorners smooths a polyline of axis-parallel runs with whole-number
@@ -768,6 +843,9 @@ func (m *mapScene) addMarks(p *plot.Plot, from, to int) error {
 func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length) (float64, error) {
 	legC, mapC := splitBottom(cell, legendH)
 	mapC.Max.X -= edgePad
+	// The 2 pt the tiled figures keep on their left (drawTiles' PadLeft):
+	// a projected grid's "y (km)" began 0.8 pt outside the figure.
+	mapC.Min.X += vg.Points(2)
 	p := newPlot(g.title, cell.Max.X-cell.Min.X-vg.Points(20))
 	var img image.Image = m.pal
 	if _, raster := cell.Canvas.(*pngCanvas); raster {
@@ -950,7 +1028,7 @@ func mapFigure(r *Results) (figure, bool) {
 		}
 	}
 	f.H = min(maxHeight, vg.Length(rows)*cellH+bottomH+vg.Points(2))
-	f.Caption = mapCaption(r, model, groups, all, marks, left)
+	f.Caption = mapCaption(r, model, groups, all, marks, left, cornersCut(cellW, pv.Width))
 	// One scene for the three formats (they are drawn at the same time):
 	// the preview decoded and every extent's outline traced once.
 	scene := sync.OnceValues(func() (*mapScene, error) { return newMapScene(r, marks, groups, cellW) })
@@ -983,7 +1061,7 @@ func mapFigure(r *Results) (figure, bool) {
 // outlines, the background (model's suitability) and the marks, with
 // notes on thinned outlines and crowded marks, the panels left off the
 // page (left of all), and the scale bar's parallel.
-func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int) string {
+func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks, left int, cut bool) string {
 	pv := r.Preview
 	south, north := pv.Bounds[1], pv.Bounds[3]
 	// Name only the anchors a panel draws: the whole raster is not drawn
@@ -1011,7 +1089,7 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		"Other extents have each a colour and dash of their own, named under the panel, up to %d a panel; past that they too are coloured by area on a colour bar. "+
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; %s"+
-		"Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells.", anchors, maxNamed, model, omissionWords(r, model))
+		"%s", anchors, maxNamed, model, omissionWords(r, model), outlineWords(cut))
 	thinned := 0
 	for _, g := range groups {
 		thinned += mapKeyOf(r, g).thinned
@@ -1020,6 +1098,7 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		c += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+
 			"%d are not drawn here, and extents.gpkg holds every extent's outline.", maxRampOutlines, thinned)
 	}
+	c += smallExtentWords(r, groups)
 	if len(marks.layers) > 2 {
 		c += " Outlines are drawn over the training and test points and under the omission marks."
 	} else {
@@ -1039,6 +1118,49 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 	}
 	if r.Grid.Geographic {
 		c += fmt.Sprintf(" Scale bar: length along the parallel at %s, where the map's aspect is true.", degreeLabel((north+south)/2, fmtTick(math.Abs((north+south)/2), 0), false))
+	}
+	return c
+}
+
+// outlineWords says how the outlines follow the coarse copy's cells:
+// with their corners cut (cornersCut) or along the cells' edges.
+func outlineWords(cut bool) string {
+	if cut {
+		return "Outlines follow the coarse copy's cells with their corners cut (a staircase of cells is drawn as a diagonal), so they are drawn to within one of its cells."
+	}
+	return "Outlines follow the edges of the coarse copy's cells, which are large enough on the map to be seen."
+}
+
+// smallExtentWords names, for the caption, the extents the panels of
+// groups draw that are circled (smallMask) and those that cover no cell
+// of the preview, which have no outline at all.
+func smallExtentWords(r *Results, groups []mapGroup) string {
+	_, masks, err := decodePreview(r.Preview)
+	if err != nil {
+		return "" // the drawing reports it
+	}
+	var small, none []string
+	for _, g := range groups {
+		for _, q := range mapKeyOf(r, g).order {
+			ei := g.members[q]
+			if ei >= len(masks) {
+				continue
+			}
+			if _, ok := smallMask(masks[ei], r.Preview.Width, r.Preview.Height); ok {
+				small = append(small, r.Extents[ei].ID)
+			} else if !slices.Contains(masks[ei], true) {
+				none = append(none, r.Extents[ei].ID)
+			}
+		}
+	}
+	var c string
+	if len(small) > 0 {
+		c += fmt.Sprintf(" A circle in its outline's colour marks %s, too small to be seen on the map (at most 1/%.0f of its width and height).", joinList(small), 1/smallMaskShare)
+	}
+	if len(none) > 0 {
+		c += fmt.Sprintf(" %s %s no cell of the coarse copy, so %s no outline here; extents.gpkg holds %s.",
+			joinList(none), map[bool]string{true: "covers", false: "cover"}[len(none) == 1],
+			map[bool]string{true: "it has", false: "they have"}[len(none) == 1], map[bool]string{true: "it", false: "them"}[len(none) == 1])
 	}
 	return c
 }
@@ -1148,6 +1270,17 @@ func drawSuitabilityBar(c draw.Canvas, lo, hi float64, model string, n int) {
 	p.Draw(bc)
 }
 
+// scaleBarLabel writes a scale bar's round length of km kilometres (1, 2
+// or 5 x 10^k): in km from 1 km, below that in metres ("200 m"), where
+// whole kilometres wrote a bar of 200 m as "0 km".
+func scaleBarLabel(km float64) string {
+	if km >= 1 {
+		return fmtTick(km, 0) + " km"
+	}
+	m := km * 1000
+	return fmtTick(m, maxInt(0, -int(math.Floor(math.Log10(m)+1e-9)))) + " m"
+}
+
 // drawScaleBar draws a scale bar of a round length and a north arrow in c,
 // at kmPerPt kilometres per point.
 func drawScaleBar(c draw.Canvas, kmPerPt float64) {
@@ -1170,7 +1303,7 @@ func drawScaleBar(c draw.Canvas, kmPerPt float64) {
 	sty := textStyle(minFontPt)
 	sty.XAlign = draw.XCenter
 	c.FillText(sty, vg.Point{X: x0, Y: y + vg.Points(5)}, "0")
-	c.FillText(sty, vg.Point{X: x0 + length, Y: y + vg.Points(5)}, fmtTick(km, 0)+" km")
+	c.FillText(sty, vg.Point{X: x0 + length, Y: y + vg.Points(5)}, scaleBarLabel(km))
 	// North arrow, to the right of the bar.
 	ax := x0 + length + vg.Points(40)
 	c.FillPolygon(ink, []vg.Point{{X: ax, Y: y + vg.Points(16)}, {X: ax - vg.Points(4), Y: y}, {X: ax, Y: y + vg.Points(4)}, {X: ax + vg.Points(4), Y: y}})

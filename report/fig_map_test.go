@@ -12,6 +12,8 @@ import (
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/recorder"
 
 	"areasweep/extent/vocab"
 )
@@ -337,5 +339,204 @@ func TestMapLoneExtentTitle(t *testing.T) {
 	r.Extents = []Extent{base, whole}
 	if gs := mapGroups(r); len(gs) != 1 || gs[0].title != "extents in no chain" {
 		t.Errorf("two extents: groups %+v, want one titled %q", gs, "extents in no chain")
+	}
+}
+
+// TestMapSmallExtentCircled: an extent of a few km² on a map of a few
+// thousand km (a 0.2° square, 378 km², on the demo's 30° grid) covered
+// one cell of the 240-cell preview, so its outline was a square of about
+// 1 pt, hidden under the point marks: named under the panel, nowhere to
+// be seen. An extent whose cells span at most 1/64 of the preview's width
+// and height is now circled in its outline's colour, and the caption
+// names it; one that covers no preview cell at all is named as having
+// no outline. Larger extents are not circled.
+func TestMapSmallExtentCircled(t *testing.T) {
+	for _, tc := range []struct {
+		mask  [][2]int // cells (column, row) of a 256 x 256 preview
+		small bool
+	}{
+		{[][2]int{{100, 100}}, true},
+		{[][2]int{{100, 100}, {103, 103}}, true}, // 4 cells across: 4 <= 256/64
+		{[][2]int{{100, 100}, {104, 100}}, false},
+		{nil, false},
+	} {
+		m := make([]bool, 256*256)
+		for _, c := range tc.mask {
+			m[c[1]*256+c[0]] = true
+		}
+		if _, small := smallMask(m, 256, 256); small != tc.small {
+			t.Errorf("cells %v: small %v, want %v", tc.mask, small, tc.small)
+		}
+	}
+
+	// A family of the base region, the whole raster, a user extent of two
+	// cells and one of none, on a 256 x 256 preview.
+	r := manyExtents(t, 10)
+	var keep []Extent
+	for _, e := range r.Extents {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep = append(keep, e)
+		}
+	}
+	const w = 256
+	disc := func(rad float64) []bool {
+		m := make([]bool, w*w)
+		for i := range m {
+			dx, dy := float64(i%w)+0.5-w/2, float64(i/w)+0.5-w/2
+			m[i] = dx*dx+dy*dy <= rad*rad
+		}
+		return m
+	}
+	tiny := make([]bool, w*w)
+	tiny[60*w+200], tiny[60*w+201] = true, true
+	masks := [][]bool{disc(60), disc(1e9)}
+	if keep[0].Kind != vocab.KindBase {
+		masks[0], masks[1] = masks[1], masks[0]
+	}
+	keep = append(keep, Extent{ID: "user_tiny", Kind: vocab.KindUser, Params: "file=tiny.gpkg", Status: vocab.StatusOK, AreaKm2: 378},
+		Extent{ID: "user_none", Kind: vocab.KindUser, Params: "file=none.gpkg", Status: vocab.StatusOK, AreaKm2: 20})
+	masks = append(masks, tiny, make([]bool, w*w))
+	r.Extents = keep
+	r.Preview = NewPreview(w, w, r.Preview.Bounds, make([]float64, w*w), 0, 1, masks)
+
+	f, ok := mapFigure(r)
+	if !ok {
+		t.Fatal("no map figure")
+	}
+	if !strings.Contains(f.Caption, "A circle in its outline's colour marks user_tiny,") {
+		t.Errorf("caption does not name the circled extent: %s", f.Caption)
+	}
+	if !strings.Contains(f.Caption, "user_none covers no cell of the coarse copy, so it has no outline here") {
+		t.Errorf("caption does not name the extent without an outline: %s", f.Caption)
+	}
+	rec := &recorder.Canvas{}
+	if err := f.draw(draw.NewCanvas(rec, f.W, f.H)); err != nil {
+		t.Fatal(err)
+	}
+	rings := 0
+	for _, a := range rec.Actions {
+		st, ok := a.(*recorder.Stroke)
+		if !ok {
+			continue
+		}
+		for _, c := range st.Path {
+			if c.Type == vg.ArcComp && c.Radius == smallRingRadius {
+				rings++
+			}
+		}
+	}
+	if rings != 1 {
+		t.Errorf("%d circles of radius %v pt drawn, want 1 (user_tiny's)", rings, smallRingRadius.Points())
+	}
+}
+
+// TestScaleBarLabel: the scale bar of a map a few hundred metres across
+// (a grid of 5 m cells) read "0 km" at its end, its length rounded to
+// whole kilometres. Below 1 km it now reads in metres. Lengths are the
+// bar's round values (1, 2 or 5 x 10^k km); labels worked by hand.
+func TestScaleBarLabel(t *testing.T) {
+	for _, tc := range []struct {
+		km   float64
+		want string
+	}{
+		{10000, "10000 km"},
+		{2, "2 km"},
+		{1, "1 km"},
+		{0.5, "500 m"},
+		{0.1, "100 m"},
+		{0.02, "20 m"},
+		{0.001, "1 m"},
+		{0.0005, "0.5 m"},
+	} {
+		if got := scaleBarLabel(tc.km); got != tc.want {
+			t.Errorf("scaleBarLabel(%g) = %q, want %q", tc.km, got, tc.want)
+		}
+	}
+	// The bar itself on a map of 0.0005 km per point (about 100 m of bar
+	// on a 500 pt key).
+	rec := &recorder.Canvas{}
+	drawScaleBar(draw.NewCanvas(rec, 500, 60), 0.0005)
+	var labels []string
+	for _, a := range rec.Actions {
+		if fs, ok := a.(*recorder.FillString); ok {
+			labels = append(labels, fs.String)
+		}
+	}
+	if !slices.Contains(labels, "100 m") {
+		t.Errorf("scale bar labels %q, want one of 100 m", labels)
+	}
+}
+
+// TestMapCoarseCellsNotCut: outlines had every corner cut by half a
+// preview cell, so on a coarse grid (6 x 5 cells of 1°, each about 80 pt
+// on the map) a base region made of whole cells, a rectangle, was drawn
+// as an octagon half a cell inside its corners. Corners are now cut only
+// where a cell is under maxCutCellPt on the panel (the demo's 240-cell
+// preview, about 1 pt a cell, still is), and the caption says which.
+func TestMapCoarseCellsNotCut(t *testing.T) {
+	base, _ := anchorStyle(vocab.KindBase)
+	for _, tc := range []struct {
+		w, h    int
+		cut     bool
+		caption string
+	}{
+		{6, 5, false, "Outlines follow the edges of the coarse copy's cells"},
+		{240, 200, true, "Outlines follow the coarse copy's cells with their corners cut"},
+	} {
+		r := manyExtents(t, 10)
+		var keep []Extent
+		for _, e := range r.Extents {
+			if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+				keep = append(keep, e)
+			}
+		}
+		r.Extents = keep
+		// base: the middle third of the cells in each direction; the
+		// whole raster: every cell.
+		masks := make([][]bool, len(keep))
+		for k, e := range keep {
+			masks[k] = make([]bool, tc.w*tc.h)
+			for i := range masks[k] {
+				c, row := i%tc.w, i/tc.w
+				masks[k][i] = e.Kind == vocab.KindWholeRaster || (c >= tc.w/3 && c < 2*tc.w/3 && row >= tc.h/3 && row < 2*tc.h/3)
+			}
+		}
+		r.Preview = NewPreview(tc.w, tc.h, r.Preview.Bounds, make([]float64, tc.w*tc.h), 0, 1, masks)
+		f, ok := mapFigure(r)
+		if !ok {
+			t.Fatal("no map figure")
+		}
+		if !strings.Contains(f.Caption, tc.caption) {
+			t.Errorf("%d x %d cells: caption lacks %q", tc.w, tc.h, tc.caption)
+		}
+		rec := &recorder.Canvas{}
+		if err := f.draw(draw.NewCanvas(rec, f.W, f.H)); err != nil {
+			t.Fatal(err)
+		}
+		var current color.Color
+		diagonal, segments := false, 0
+		for _, a := range rec.Actions {
+			switch a := a.(type) {
+			case *recorder.SetColor:
+				current = a.Color
+			case *recorder.Stroke:
+				if current != base.Color {
+					continue
+				}
+				for k := 1; k < len(a.Path); k++ {
+					p, q := a.Path[k-1].Pos, a.Path[k].Pos
+					if a.Path[k].Type == vg.LineComp {
+						segments++
+						diagonal = diagonal || (math.Abs(float64(q.X-p.X)) > 1e-6 && math.Abs(float64(q.Y-p.Y)) > 1e-6)
+					}
+				}
+			}
+		}
+		if segments == 0 {
+			t.Fatalf("%d x %d cells: no outline of base drawn", tc.w, tc.h)
+		}
+		if diagonal != tc.cut {
+			t.Errorf("%d x %d cells: base outline has diagonal segments %v, want %v", tc.w, tc.h, diagonal, tc.cut)
+		}
 	}
 }

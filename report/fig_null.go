@@ -76,7 +76,8 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 		if gapNulls(r) == 1 {
 			dash = modelDash(i) // one null: the line pattern is the model's
 		}
-		ls, x0, x1, err := addGapSeries(p, gaps, i, j, dash, div, scale, chainOf)
+		shift := seriesShift(j*len(modelIndex)+i, len(modelIndex)*gapNulls(r))
+		ls, x0, x1, err := addGapSeries(p, gaps, i, shift, dash, div, scale, chainOf)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -103,17 +104,15 @@ func nullGapPlot(r *Results, w vg.Length) (*plot.Plot, []legendItem, error) {
 	return p, items, nil
 }
 
-// addGapSeries adds to p one model-minus-null series (model i, null j,
-// line pattern dash; gaps defined, areas in units of div): a line joining the extents of
+// addGapSeries adds to p one model-minus-null series (model i, line
+// pattern dash; gaps defined, areas in units of div): a line joining the extents of
 // each nested chain (chainOf), the markers scaled by scale, and the 95%
-// intervals as bars, the series shifted sideways a little so that bars
-// stay apart. It returns the series' line style and the smallest and
-// largest x drawn.
-func addGapSeries(p *plot.Plot, gaps []NullGap, i, j int, dash []vg.Length, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
+// intervals as bars, the series moved along the area axis by the factor
+// shift (seriesShift) so that bars stay apart. It returns the series'
+// line style and the smallest and largest x drawn.
+func addGapSeries(p *plot.Plot, gaps []NullGap, i int, shift float64, dash []vg.Length, div float64, scale vg.Length, chainOf map[string]string) (ls draw.LineStyle, lo, hi float64, err error) {
 	lo, hi = math.Inf(1), math.Inf(-1)
 	sort.SliceStable(gaps, func(a, b int) bool { return gaps[a].AreaKm2 < gaps[b].AreaKm2 })
-	// A small horizontal offset per series keeps the bars apart.
-	shift := math.Pow(2, 0.03*float64(i+3*j))
 	xys := make(plotter.XYs, len(gaps))
 	chains := make([]string, len(gaps))
 	var ep struct {
@@ -165,6 +164,12 @@ var gapDashes = [][]vg.Length{
 	{vg.Points(7), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
 	{vg.Points(9), vg.Points(3)},
 	{vg.Points(5), vg.Points(2), vg.Points(1.5), vg.Points(2), vg.Points(1.5), vg.Points(2)},
+	// Four more, so that ten nulls differ (six --null rasters and the
+	// distance-only null drew the seventh, that null, as the first).
+	{vg.Points(1.5), vg.Points(4.5)},
+	{vg.Points(12), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
+	{vg.Points(3), vg.Points(4)},
+	{vg.Points(9), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5), vg.Points(1.5), vg.Points(2.5)},
 }
 
 // gapNulls counts the nulls with an AUC difference in the
@@ -276,6 +281,11 @@ func nullGapFigures(r *Results) []figure {
 		top, rest := splitTop(c, vg.Length(len(legend))*legendRowHeight+vg.Points(4))
 		drawLegendRows(top, legend)
 		rest.Max.X -= edgePad
+		// The 2 pt the panels of the other figures keep on their left
+		// (drawTiles' PadLeft): gonum sets the vertical axis title's
+		// baseline one text height from the canvas's edge, so without them
+		// the tops of its glyphs stood 0.8 pt outside the figure.
+		rest.Min.X += vg.Points(2)
 		p.Draw(rest)
 		return nil
 	}

@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -90,12 +92,12 @@ func TestNullGapPanelKeepsHeight(t *testing.T) {
 // TestNullGapPairsTellApart: two nulls besides the first were both drawn
 // dotted, and a model whose own pattern is dotted (the third) drew all its
 // pairs alike, so a reader could not tell which null a line subtracts.
-// Every pair of models and nulls (up to six of each) differs in colour,
+// Every pair of six models and ten nulls differs in colour,
 // marker or line pattern.
 func TestNullGapPairsTellApart(t *testing.T) {
 	seen := map[string]string{}
 	for i := range 6 {
-		for j := range 6 {
+		for j := range 10 {
 			ls := lineStyle(modelColor(i), 1, gapDash(j))
 			key := fmt.Sprintf("%s %T %v", svgColor(ls.Color), markerStyle(i).Shape, ls.Dashes)
 			pair := fmt.Sprint(i, "-", j)
@@ -117,7 +119,7 @@ func TestNullGapPairsTellApart(t *testing.T) {
 		}
 	}
 	// Patterns that differ only by a fraction of a point read as one.
-	for a := range 6 {
+	for a := range 10 {
 		for b := range a {
 			da, db := gapDash(a), gapDash(b)
 			if len(da) == len(db) {
@@ -160,5 +162,87 @@ func TestFactorKeyModelsWithoutLine(t *testing.T) {
 	}
 	if models != 3 || nullsKeyed != 2 {
 		t.Errorf("key of 3 models and 2 nulls: %d model entries, %d null entries", models, nullsKeyed)
+	}
+}
+
+// TestAreaAxisGlobalUnit: the area axes of metrics_vs_area,
+// model_minus_null and the ROC colour bar counted in 1000 km² at any
+// size, so a study of the whole globe (510 million km²) read "100000",
+// "200000", "500000" on its axes while the report's summary said "from 66
+// to 510 million km²" (areaRange). Past 10 million km², as areaRange, the
+// axes count in million km²; below 10,000 km² in km², between in 1000 km².
+func TestAreaAxisGlobalUnit(t *testing.T) {
+	for _, tc := range []struct {
+		max  float64
+		div  float64
+		unit string
+	}{
+		{9999, 1, "extent area (km²)"},
+		{1e4, 1e3, "extent area (1000 km²)"},
+		{3.25e6, 1e3, "extent area (1000 km²)"},
+		{1e7, 1e6, "extent area (million km²)"},
+		{5.1e8, 1e6, "extent area (million km²)"},
+	} {
+		if div, unit := areaAxis(tc.max); div != tc.div || unit != tc.unit {
+			t.Errorf("areaAxis(%g) = %g, %q; want %g, %q", tc.max, div, unit, tc.div, tc.unit)
+		}
+	}
+	// The model-minus-null figure of a global study: extents of 66, 105
+	// and 510 million km² (a run on a 0.25° grid of the whole globe).
+	r := gapResults(1, 1)
+	for i := range r.Sensitivity.AboveNull {
+		for k, a := range []float64{6.6e7, 1.05e8, 5.1e8} {
+			r.Sensitivity.AboveNull[i].Gaps[k].AreaKm2 = a
+		}
+	}
+	texts := drawnTexts(t, nullGapFigures(r)[0])
+	if !slices.Contains(texts, "extent area (million km²)") {
+		t.Errorf("axis title not in million km²: %q", texts)
+	}
+	for _, s := range texts {
+		if len(s) >= 5 && strings.Trim(s, "0123456789") == "" {
+			t.Errorf("tick label %q: five digits or more where the unit could be a million km²", s)
+		}
+	}
+}
+
+// TestSeriesShiftBounded: series are moved along the area axis so that
+// their bars stand apart, by 2^(0.05 k) in the metrics figure and
+// 2^(0.03 (i+3j)) in the model-minus-null figure, without bound: 12
+// models put the first and last 17% and 21% off their extents' areas,
+// and one model with seven nulls put the last 45% off (seen in a run
+// with six --null rasters), while the captions say "a few percent".
+// Every series now lies within 2^0.1 (7%, our cut-off) of the true area,
+// series are centred on it, and up to five keep the old 2^0.05 step.
+func TestSeriesShiftBounded(t *testing.T) {
+	for n := 1; n <= 40; n++ {
+		prev := 0.0
+		for k := range n {
+			s := seriesShift(k, n)
+			if d := math.Abs(math.Log2(s)); d > maxShiftSpan/2+1e-12 {
+				t.Errorf("n=%d: series %d shifted by %.3f, %.1f%%", n, k, s, 100*(s-1))
+			}
+			if k > 0 && !(s > prev) {
+				t.Errorf("n=%d: series %d not right of series %d", n, k, k-1)
+			}
+			if n <= 5 && k > 0 && math.Abs(math.Log2(s/prev)-0.05) > 1e-12 {
+				t.Errorf("n=%d: step %.4f, want the old 0.05", n, math.Log2(s/prev))
+			}
+			prev = s
+		}
+		if s := seriesShift(0, n) * seriesShift(n-1, n); math.Abs(s-1) > 1e-12 {
+			t.Errorf("n=%d: not centred (first x last = %g)", n, s)
+		}
+	}
+	// The figure of one model and seven nulls: the drawn x range (the
+	// axis less its 1.25 margin) within 7% of the areas, 100 to 1600
+	// thousand km².
+	r := gapResults(1, 7)
+	p, _, err := nullGapPlot(r, 150*vg.Millimeter)
+	if err != nil || p == nil {
+		t.Fatalf("no plot: %v", err)
+	}
+	if lo, hi := p.X.Min*1.25, p.X.Max/1.25; lo < 100/math.Pow(2, 0.1)-1e-9 || hi > 1600*math.Pow(2, 0.1)+1e-9 {
+		t.Errorf("series drawn from %.1f to %.1f, areas 100 to 1600", lo, hi)
 	}
 }

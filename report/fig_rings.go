@@ -4,12 +4,15 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"areasweep/extent/vocab"
 )
 
 // chainWaterfall is one nested chain for one or more models with the same
@@ -678,6 +681,55 @@ func ringPagesSentence(pages []ringPage) string {
 	return out
 }
 
+// ringStartWords names, for the waterfall's caption, the smaller members
+// of a nested chain its panels leave out: a chain starts at its first
+// member where the model is scored (chainSummary), so a region chain
+// whose base region holds no test point began at a larger buffer with
+// no word of where base had gone. One sentence per chain and start,
+// naming the models and nulls it holds for.
+func ringStartWords(r *Results) string {
+	type start struct {
+		chain, first, skipped string
+		n                     int
+	}
+	var order []start
+	who := map[start][]string{}
+	for _, c := range r.Sensitivity.Chains {
+		if len(c.Members) < 2 {
+			continue
+		}
+		type ext struct {
+			id   string
+			area float64
+		}
+		var before []ext
+		for _, e := range r.Extents {
+			if e.Chain == c.Chain && e.Status == vocab.StatusOK && e.AreaKm2 < c.MemberAreasKm2[0] {
+				before = append(before, ext{e.ID, e.AreaKm2})
+			}
+		}
+		if len(before) == 0 {
+			continue
+		}
+		sort.SliceStable(before, func(a, b int) bool { return before[a].area < before[b].area })
+		ids := make([]string, len(before))
+		for k, e := range before {
+			ids[k] = e.id
+		}
+		k := start{c.Chain, c.Members[0], joinList(ids), len(ids)}
+		if _, ok := who[k]; !ok {
+			order = append(order, k)
+		}
+		who[k] = append(who[k], ModelLabel(r, c.Model))
+	}
+	var out string
+	for _, k := range order {
+		out += fmt.Sprintf(" Chain %s starts at %s for %s: its smaller member%s %s %s no AUC there (the Scores table says why).",
+			k.chain, k.first, joinList(who[k]), Plural(k.n), k.skipped, map[bool]string{true: "has", false: "have"}[k.n == 1])
+	}
+	return out
+}
+
 // ringsFigures draws the waterfall panels on as many pages as their rows
 // need at the row pitch of ringRowPitch: ring_steps, then ring_steps_2,
 // ring_steps_3, ... (the models' chains first, then the nulls'). A long
@@ -736,7 +788,7 @@ func ringsFigures(r *Results) []figure {
 			if split {
 				f.Caption += fmt.Sprintf(" The value columns of more than %d models do not fit beside one panel: a chain's models are split over panels of at most %d (titled part 1, part 2, ...).", perPanel, perPanel)
 			}
-			f.Caption += ringPagesSentence(pages)
+			f.Caption += ringPagesSentence(pages) + ringStartWords(r)
 		} else {
 			f.Caption = fmt.Sprintf("Continues %s: %s. Read as %s (its caption and the note under it say how).", ringPageName(pi-1), strings.Join(chains, "; "), ringPageName(0))
 		}

@@ -443,3 +443,35 @@ func TestShortDashedArrow(t *testing.T) {
 		}
 	}
 }
+
+// TestRingCaptionNamesSkippedStart: a chain starts at its first member
+// where the model is scored, so a study whose base region holds no test
+// point (a region drawn away from the records) drew its region chain from
+// region_100km down, with base and region_minus50km gone and no word of
+// why. The caption now names the members left out. In the sample, the
+// region chain's base unscored for every model starts the chain at
+// region_b50.
+func TestRingCaptionNamesSkippedStart(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		if r.Scores[i].Extent == "base" {
+			r.Scores[i] = Score{Model: r.Scores[i].Model, Extent: "base", NotScored: "no test points inside this extent"}
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	figs := ringsFigures(r)
+	if len(figs) == 0 {
+		t.Fatal("no waterfall")
+	}
+	want := "Chain region starts at region_b50 for good, truncated and broad: its smaller member base has no AUC there"
+	if !strings.Contains(figs[0].Caption, want) {
+		t.Errorf("caption lacks %q:\n%s", want, figs[0].Caption)
+	}
+	// With every member scored, no such sentence.
+	full := analyzedSample(t)
+	if c := ringsFigures(full)[0].Caption; strings.Contains(c, " starts at ") {
+		t.Errorf("caption of the full sample names a skipped start: %s", c)
+	}
+}

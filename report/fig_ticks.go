@@ -117,9 +117,10 @@ func (t niceTicks) Ticks(min, max float64) []plot.Tick {
 // logTicks labels a log axis at 1, 2 and 5 x 10^k, with unlabelled minor
 // ticks at the other whole multiples; a range too narrow for two such
 // labels falls back to niceTicks (narrow). With an axis length W (points) and
-// label size Pt set, a 2 or 5 x 10^k label is dropped where it would
-// come within 3 pt of a neighbouring label (labels centred on their
-// ticks), powers of ten first, so crowded labels never touch.
+// label size Pt set, a label is dropped where it would come within 3 pt
+// of a neighbouring label (labels centred on their ticks): powers of ten
+// are placed first, from the smallest up, then 2 and 5 x 10^k, so crowded
+// labels never touch.
 type logTicks struct {
 	W  vg.Length
 	Pt float64
@@ -186,19 +187,26 @@ func (lt logTicks) apart(ts []plot.Tick, min, max float64) bool {
 }
 
 // spread drops the labels of ts (ticks from min to max) that would crowd
-// their neighbours on an axis of length lt.W: powers of ten are kept, then
-// each 2 and 5 x 10^k, in order, only if it keeps 3 pt from the nearest
-// kept label on each side.
+// their neighbours on an axis of length lt.W: powers of ten are kept
+// while they keep 3 pt apart, then each 2 and 5 x 10^k, in order, only if
+// it keeps 3 pt from the nearest kept label on each side.
 func (lt logTicks) spread(ts []plot.Tick, min, max float64) {
 	x := func(v float64) vg.Length { return vg.Length(math.Log10(v/min)/math.Log10(max/min)) * lt.W }
 	half := func(t plot.Tick) vg.Length { return textWidth(t.Label, lt.Pt) / 2 }
 	isDecade := func(v float64) bool { return v == math.Pow10(int(math.Round(math.Log10(v)))) }
-	kept := make([]bool, len(ts))
-	for i, t := range ts {
-		kept[i] = t.Label != "" && isDecade(t.Value)
-	}
 	apart := func(i, j int) bool { // labels i < j far enough apart
 		return x(ts[j].Value)-x(ts[i].Value) >= half(ts[i])+half(ts[j])+vg.Points(3)
+	}
+	// Powers of ten from the smallest up, each kept if it keeps 3 pt from
+	// the last one kept: on a range of six decades or more ("1" to
+	// "100000" in 1000 km² on a 150 pt panel) neighbouring powers of ten
+	// touched, and were all drawn.
+	kept := make([]bool, len(ts))
+	last := -1
+	for i, t := range ts {
+		if t.Label != "" && isDecade(t.Value) && (last < 0 || apart(last, i)) {
+			kept[i], last = true, i
+		}
 	}
 	for i, t := range ts {
 		if t.Label == "" || kept[i] {

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"image"
 	"image/color"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -396,15 +397,27 @@ func newPNGCanvas(w, h vg.Length) *pngCanvas {
 	return newFastTextCanvas(vgimg.NewWith(vgimg.UseImageWithContext(img, ctx), vgimg.UseDPI(pngDPI)), img)
 }
 
+// pageFigurePx is the widest a figure is shown on the page, in CSS
+// pixels: svg.figure's max-width in page/report.css, which a
+// two-column figure fills.
+const pageFigurePx = 1000
+
 // appendInlineSVG appends to dst an SVG document prepared for inlining in
 // HTML: without the XML prolog and comment, the root element given an id,
-// a role and a label.
-func appendInlineSVG(dst, svg []byte, id, label string) []byte {
+// a role and a label. A figure narrower than two columns (print width w)
+// is given a max-width in proportion, pageFigurePx × w / twoColumns, so
+// that its text is shown at the size of the other figures' text: filling
+// the page's width, a one-column figure (the ROC curves of one model, the
+// map of one panel) showed its 8 pt labels about twice as large.
+func appendInlineSVG(dst, svg []byte, id, label string, w vg.Length) []byte {
 	i := bytes.Index(svg, []byte("<svg"))
 	if i < 0 {
 		return append(dst, svg...)
 	}
 	dst = fmt.Appendf(dst, `<svg id="%s" class="figure" role="img" aria-label="%s"`, id, htmlEscape(label))
+	if w > 0 && w < twoColumns {
+		dst = fmt.Appendf(dst, ` style="max-width:%dpx"`, int(math.Round(pageFigurePx*float64(w/twoColumns))))
+	}
 	return append(dst, svg[i+len("<svg"):]...)
 }
 

@@ -343,7 +343,7 @@ func svgMarker(i int) string { return fmt.Sprintf("<!--areasweep figure %d svg--
 func spliceSVGs(page []byte, figs []renderedFigure) ([]byte, error) {
 	size := len(page)
 	for _, rf := range figs {
-		size += len(rf.svg) + 200 + len(htmlEscape(rf.fig.Title)) // the new root tag
+		size += len(rf.svg) + 230 + len(htmlEscape(rf.fig.Title)) // the new root tag
 	}
 	out := make([]byte, 0, size)
 	for i, rf := range figs {
@@ -352,7 +352,7 @@ func spliceSVGs(page []byte, figs []renderedFigure) ([]byte, error) {
 		if at < 0 {
 			return nil, fmt.Errorf("report: report.html: internal error: no place for figure %s", rf.fig.Name)
 		}
-		out = appendInlineSVG(append(out, page[:at]...), rf.svg, "fig-"+rf.fig.Name, rf.fig.Title)
+		out = appendInlineSVG(append(out, page[:at]...), rf.svg, "fig-"+rf.fig.Name, rf.fig.Title, rf.fig.W)
 		page = page[at+len(m):]
 	}
 	return append(out, page...), nil

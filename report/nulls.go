@@ -43,12 +43,14 @@ func nulls(r *Results) []Model {
 // nullLineStyle draws the k-th null in the metric figures: grey, dotted,
 // thinner than the models' lines, and with hollow markers, so it reads as
 // a reference and not as one more model. Two greys alternate; each pair
-// of nulls takes the next hollow marker (circle, square, triangle), so
-// that up to six nulls (two of the user's and the distance-only null
-// already make three) are told apart by grey and marker together.
+// of nulls takes the next hollow marker (circle, square, triangle, plus,
+// cross), so that up to ten nulls (two of the user's and the distance-only null
+// already make three) are told apart by grey and marker together. With
+// three markers, a run with six --null rasters drew the distance-only
+// null, the seventh, as the first.
 func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 	grey := []color.Color{color.Gray{Y: 90}, color.Gray{Y: 150}}[k%2]
-	shape := []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}}[(k/2)%3]
+	shape := []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}, draw.PlusGlyph{}, draw.CrossGlyph{}}[(k/2)%5]
 	return draw.LineStyle{Color: grey, Width: vg.Points(1.2), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2)}},
 		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: shape}
 }

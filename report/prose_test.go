@@ -993,9 +993,9 @@ func TestMapCaptionPanelsLeft(t *testing.T) {
 		t.Fatalf("the sample has %d map panels, the test needs 3", len(groups))
 	}
 	model := r.Models[0].Name
-	one := mapCaption(r, model, groups[:len(groups)-1], groups, mapMarks{}, 1)
+	one := mapCaption(r, model, groups[:len(groups)-1], groups, mapMarks{}, 1, true)
 	checkWords(t, "caption", one, []string{" 1 more panel (" + groups[len(groups)-1].title + ") does not fit on the page;"}, []string{"panels", "do not fit"})
-	two := mapCaption(r, model, groups[:len(groups)-2], groups, mapMarks{}, 2)
+	two := mapCaption(r, model, groups[:len(groups)-2], groups, mapMarks{}, 2, true)
 	checkWords(t, "caption", two, []string{" 2 more panels (", ") do not fit on the page;"}, nil)
 }
 

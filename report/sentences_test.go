@@ -1917,7 +1917,7 @@ func TestMapCaptionAnchorsDrawn(t *testing.T) {
 			}
 		}
 		gs := mapGroups(r)
-		checkWords(t, c.name, mapCaption(r, "good", gs, gs, mapMarks{}, 0), []string{c.want}, c.notWant)
+		checkWords(t, c.name, mapCaption(r, "good", gs, gs, mapMarks{}, 0, true), []string{c.want}, c.notWant)
 	}
 }
 

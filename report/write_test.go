@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"html/template"
 	"image/png"
 	"os"
@@ -13,6 +14,7 @@ import (
 	"sync"
 	"testing"
 
+	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
 
@@ -439,7 +441,7 @@ func TestSpliceSVGs(t *testing.T) {
 		t.Fatal(err)
 	}
 	v, err := newPageView(r, figs, "methods", func(i int) template.HTML {
-		return template.HTML(appendInlineSVG(nil, figs[i].svg, "fig-"+figs[i].fig.Name, figs[i].fig.Title))
+		return template.HTML(appendInlineSVG(nil, figs[i].svg, "fig-"+figs[i].fig.Name, figs[i].fig.Title, figs[i].fig.W))
 	})
 	if err != nil {
 		t.Fatal(err)
@@ -451,7 +453,35 @@ func TestSpliceSVGs(t *testing.T) {
 	if !bytes.Equal(got, plainPlus(want.Bytes())) {
 		t.Errorf("page of %d bytes with the SVGs spliced in, %d through the template", len(got), want.Len())
 	}
-	if len(figs) < 3 || !bytes.Contains(got, appendInlineSVG(nil, figs[2].svg, "fig-"+figs[2].fig.Name, figs[2].fig.Title)) {
+	if len(figs) < 3 || !bytes.Contains(got, appendInlineSVG(nil, figs[2].svg, "fig-"+figs[2].fig.Name, figs[2].fig.Title, figs[2].fig.W)) {
 		t.Error("the third figure's SVG is not on the page")
+	}
+}
+
+// TestInlineSVGWidth: every figure was shown up to 1000 px wide, so a
+// one-column figure (85 mm: the ROC curves of a run with one model and
+// no null, the map of one panel) was scaled twice as much as a
+// two-column one (175 mm) and its 8 pt labels read as about 33 px type
+// beside 16 px body text. A figure narrower than two columns now carries
+// a max-width in proportion to its print width; a two-column one is
+// left to the style sheet's 1000 px.
+func TestInlineSVGWidth(t *testing.T) {
+	svg := []byte(`<?xml version="1.0"?>` + "\n" + `<svg width="10pt" height="10pt"></svg>`)
+	for _, tc := range []struct {
+		w    vg.Length
+		want string
+	}{
+		{oneColumn, `<svg id="f" class="figure" role="img" aria-label="F" style="max-width:486px" width="10pt"`},
+		{twoColumns, `<svg id="f" class="figure" role="img" aria-label="F" width="10pt"`},
+	} {
+		got := string(appendInlineSVG(nil, svg, "f", "F", tc.w))
+		if !strings.HasPrefix(got, tc.want) {
+			t.Errorf("width %.0f mm: %s, want it to start %s", tc.w/vg.Millimeter, got, tc.want)
+		}
+	}
+	// 486 px is 1000 px × 85/175 (worked by hand), the style sheet's
+	// width for two columns scaled to one.
+	if css, err := os.ReadFile("page/report.css"); err != nil || !strings.Contains(string(css), fmt.Sprintf("max-width: %dpx", pageFigurePx)) {
+		t.Errorf("page/report.css does not give svg.figure max-width %d px (%v)", pageFigurePx, err)
 	}
 }

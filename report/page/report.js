@@ -59,17 +59,20 @@
       document.getElementById("teach-sentence").textContent = "No scored extent to show.";
       return;
     }
-    var labels = {};
+    // Maps keyed by names are objects without a prototype: a model may
+    // be called "__proto__" or "constructor", which a plain {} would
+    // resolve to its prototype, which the menu then printed.
+    var labels = Object.create(null);
     data.models.forEach(function (m, i) { labels[m] = data.labels[i] || m; selM.appendChild(new Option(labels[m], m)); });
     // who names the chosen model in a sentence: "model good", or a null by its label.
     function who(m) { return labels[m] === m ? "model " + m : labels[m]; }
     data.extents.forEach(function (e) { selE.appendChild(new Option(e.id + " (" + e.area + " km²)", e.id)); });
-    var cells = {};
+    var cells = Object.create(null);
     data.cells.forEach(function (c) { cells[c.model + "\u0000" + c.extent] = c; });
 
     function fromHash() {
       var h = (window.location.hash || "").replace(/^#/, "");
-      var out = {};
+      var out = Object.create(null);
       h.split("&").forEach(function (kv) {
         var i = kv.indexOf("=");
         if (i > 0) { out[decodeURIComponent(kv.slice(0, i))] = decodeURIComponent(kv.slice(i + 1)); }
