@@ -183,7 +183,7 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 			fewest = sc.TestPoints
 		}
 	}
-	cs.Sentence = chainSentence(&cs, who) + fewPointsClause(fewest)
+	cs.Sentence = chainSentence(&cs, who, a.r.Settings.ToleranceAUC) + fewPointsClause(fewest)
 	return cs, warns
 }
 
@@ -201,8 +201,9 @@ func (a *analysis) chainScore(model, extent string) *Score {
 }
 
 // chainSentence says how AUC moves along the chain cs of a "model" or a
-// "null" (who).
-func chainSentence(cs *ChainSummary, who string) string {
+// "null" (who); tol is the run's AUC tolerance, the difference the user
+// treats as negligible: shares of a change within it are not given.
+func chainSentence(cs *ChainSummary, who string, tol float64) string {
 	n := len(cs.Members)
 	head := fmt.Sprintf("Along chain %s, AUC of %s %s goes from %s (%s, %s km²) to %s (%s, %s km²)",
 		cs.Chain, who, cs.Model, f3(cs.StartAUC), cs.Members[0], fmtArea(cs.MemberAreasKm2[0]),
@@ -223,6 +224,9 @@ func chainSentence(cs *ChainSummary, who string) string {
 		}
 		return fmt.Sprintf("%s: it changes by %s in all, which the three decimals do not show, so no share of the change is given (each step is in the table).",
 			head, ch)
+	}
+	if tol > 0 && math.Abs(cs.Change) <= tol {
+		return negligibleChainSentence(cs, head, tol)
 	}
 	st := cs.Steps[cs.Largest]
 	word := "gain"
@@ -251,15 +255,49 @@ func chainSentence(cs *ChainSummary, who string) string {
 	}
 	s := fmt.Sprintf("%s; %s the ring %s minus %s (%s km²)",
 		head, comes, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
-	if cs.Slope.Defined {
-		// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
-		// reads as no change beside AUCs that do change.
-		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
-	}
+	tail += slopeClause(cs)
 	if !st.AUCRingDefined {
 		return s + "." + tail
 	}
 	return s + ", " + ringClause(st) + tail
+}
+
+// negligibleChainSentence ends the sentence of a chain whose AUC changes
+// by no more than the AUC tolerance tol from end to end: shares of a
+// negligible change are ratios of small numbers ("433% of the loss comes
+// from test points that enter with hull_100km" was written for a change
+// of -0.001), so none is given. Steps that move the score by more than tol
+// and cancel are named, the largest of them, so that a flat chain is not
+// read as a chain whose rings change nothing.
+func negligibleChainSentence(cs *ChainSummary, head string, tol float64) string {
+	s := fmt.Sprintf("%s: it changes by %s in all, within %s, so no share of the change is given (each step is in the table).",
+		head, signedVs(cs.Change, tol, -tol), toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: tol}))
+	big := -1
+	for i, st := range cs.Steps {
+		if math.Abs(st.Change) > tol && (big < 0 || math.Abs(st.Change) > math.Abs(cs.Steps[big].Change)) {
+			big = i
+		}
+	}
+	if big >= 0 {
+		st := cs.Steps[big]
+		what := fmt.Sprintf("the ring %s minus %s", st.Outer, st.Inner)
+		if st.Kind == StepTestPoints {
+			what = fmt.Sprintf("the test points that enter with %s", st.Outer)
+		}
+		s += fmt.Sprintf(" Its steps go both ways and cancel: the largest, %s, comes from %s.", signedVs(st.Change, tol, -tol), what)
+	}
+	return s + slopeClause(cs)
+}
+
+// slopeClause is the chain's slope of AUC against log2 of the area, a
+// description; "" when it is not defined.
+func slopeClause(cs *ChainSummary) string {
+	if !cs.Slope.Defined {
+		return ""
+	}
+	// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
+	// reads as no change beside AUCs that do change.
+	return fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
 }
 
 // fewPointsClause warns that a chain's shares rest on few test points when

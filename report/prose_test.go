@@ -786,7 +786,7 @@ func TestChainSlopeNotPrintedAsZero(t *testing.T) {
 			StartAUC: 0.604, EndAUC: 0.605, Change: 0.001, SharesDefined: true, Largest: 0,
 			Slope: Slope{Defined: true, PerDoubling: c.slope, N: 3},
 			Steps: []ChainStep{{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.604, AUCOuter: 0.605, AUCRing: 0.606, AUCRingDefined: true, Change: 0.001, Share: 1}}}
-		checkWords(t, "chain", chainSentence(&cs, "model"), []string{c.want}, nil)
+		checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC), []string{c.want}, nil)
 	}
 }
 
@@ -865,15 +865,15 @@ func TestChainChangeBelowDecimals(t *testing.T) {
 			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 126000, AUCInner: 0.4401, AUCOuter: 0.4406, AUCRing: 0.441, AUCRingDefined: true, Change: 0.0005, Share: 2.5},
 			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 412000, AUCInner: 0.4406, AUCOuter: 0.4403, AUCRing: 0.4401, AUCRingDefined: true, Change: -0.0003, Share: -1.5},
 		}}
-	checkWords(t, "chain", chainSentence(&cs, "model"),
+	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC),
 		[]string{"goes from 0.440 (a, 174,000 km²) to 0.440 (c, 712,000 km²): it changes by +0.0002 in all, which the three decimals do not show, so no share of the change is given"},
 		[]string{"of the gain", "250%"})
 	// Ends 0.4396 and 0.4404 both print 0.440; their change is +0.0008,
 	// not "+0.001" (worked by hand).
 	cs.StartAUC, cs.EndAUC, cs.Change = 0.4396, 0.4404, 0.0008
-	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.0008 in all"}, []string{"+0.001"})
+	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC), []string{"it changes by +0.0008 in all"}, []string{"+0.001"})
 	cs.StartAUC, cs.EndAUC, cs.Change = 0.44, 0.44002, 0.00002
-	checkWords(t, "chain", chainSentence(&cs, "model"), []string{"it changes by +0.00002 in all"}, nil)
+	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC), []string{"it changes by +0.00002 in all"}, nil)
 }
 
 // TestHeadlineOneValue: the headline says a model's AUC is one value on
