@@ -87,6 +87,59 @@ type NullGap struct {
 	nFormed int
 }
 
+// randomLevel is the score of a random ranking on metric kind k (an AUC
+// of 0.5, a partial ROC ratio of 1), and false for a metric without one.
+func randomLevel(k MetricKind) (float64, bool) {
+	switch k {
+	case MetricAUC, MetricAUCUnweighted:
+		return 0.5, true
+	case MetricPartialROC:
+		return 1, true
+	}
+	return 0, false
+}
+
+// aboveWithoutSkill tells whether g reads the model above the null while
+// the model itself scores no better than a random ranking (AUC at most
+// 0.5, partial ROC ratio at most 1): the null then does worse than random,
+// and being above it is no sign of skill. The known-answer study of a
+// model that is the reverse of a good one (AUC 0.165) read "above
+// distance_null beyond noise" on test points far from the training
+// points, where the null's AUC was 0.110.
+func aboveWithoutSkill(k MetricKind, g *NullGap) bool {
+	lvl, ok := randomLevel(k)
+	return ok && g != nil && g.Defined && g.Reading == ReadingAbove && g.ModelValue <= lvl
+}
+
+// noSkillClause is the words that follow "above the null" when
+// aboveWithoutSkill holds: the model's own score against random.
+func noSkillClause(k MetricKind, label string, g *NullGap) string {
+	lvl, _ := randomLevel(k)
+	return fmt.Sprintf("its own %s, %s, is at or below %s, that of a random ranking, so being above a null that does worse still is no sign of skill",
+		label, f3(g.ModelValue), fmtG(lvl))
+}
+
+// readingWords is g's reading as a table shows it ("not above"), with
+// "above" qualified where the model itself scores no better than random
+// (aboveWithoutSkill).
+func readingWords(k MetricKind, g *NullGap) string {
+	w := strings.ReplaceAll(g.Reading, "_", " ")
+	if aboveWithoutSkill(k, g) {
+		lvl, _ := randomLevel(k)
+		w += fmt.Sprintf(" (model at or below %s, random: no sign of skill)", fmtG(lvl))
+	}
+	return w
+}
+
+// kindOf is the kind of the metric of key among kinds (buildMetrics'),
+// or MetricBoyce, which has no random level, for a key not there.
+func kindOf(kinds map[string]MetricKind, key string) MetricKind {
+	if k, ok := kinds[key]; ok {
+		return k
+	}
+	return MetricBoyce
+}
+
 // gapReading reads a defined interval against 0.
 func gapReading(lo, hi float64) string {
 	switch {
@@ -204,8 +257,12 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s)", an.BaseExtent, score, an.Model, null,
 			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if aboveWithoutSkill(m.Kind, g) {
+			fmt.Fprintf(&b, "; but %s", noSkillClause(m.Kind, score, g))
+		}
+		b.WriteString(".")
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
@@ -393,6 +450,9 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
 			signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if aboveWithoutSkill(MetricAUC, g) {
+			part += " but " + noSkillClause(MetricAUC, "AUC", g)
+		}
 		if !notJudgedPosition(an.BaseReading) && g.zero() {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
@@ -436,6 +496,10 @@ func aboveNullRows(r *Results) [][]cell {
 	if r.Sensitivity == nil {
 		return nil
 	}
+	kinds := map[string]MetricKind{}
+	for _, m := range buildMetrics(r) {
+		kinds[m.Key] = m.Kind
+	}
 	for _, an := range r.Sensitivity.AboveNull {
 		for _, g := range an.Gaps {
 			row := []cell{tc(an.Metric), tc(an.Model), tc(ModelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
@@ -444,7 +508,7 @@ func aboveNullRows(r *Results) [][]cell {
 				// The difference describes; its interval is not read.
 				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), dash, tc(g.Method), tc("not judged ("+g.why()+")"))
 			case g.Defined:
-				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(readingWords(kindOf(kinds, an.Metric), &g)))
 			default:
 				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
@@ -484,7 +548,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
+			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), readingWords(MetricAUC, g))
 			if notJudgedPosition(g.Reading) {
 				text = fmt.Sprintf("%s, not judged (%s)", signedSmall(g.Diff), g.why())
 			}

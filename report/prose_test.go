@@ -916,6 +916,48 @@ func TestReplySensitiveForEvery(t *testing.T) {
 		[]string{"AUC and predicted area moved"})
 }
 
+// TestAboveNullWithoutSkill: a model above the null beyond noise whose
+// own score is at most that of a random ranking (AUC 0.5, partial ROC
+// ratio 1) is said to show no skill, in the sentence, the headline, the
+// reviewer's reply and the tables; a model above random is not. The
+// numbers are the known-answer study's reverse of a good model (AUC
+// 0.165 against the distance-only null's 0.110 on test points far from
+// the training points), which read "above distance_null beyond noise"
+// with nothing more.
+func TestAboveNullWithoutSkill(t *testing.T) {
+	an := func(model string, mv, nv float64) AboveNull {
+		return AboveNull{Metric: "auc", Model: model, Null: "distance_null", NullKind: NullDistance, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
+			SmallestExtent: "base", LargestExtent: "base",
+			Gaps: []NullGap{{Extent: "base", AreaKm2: 461000, Defined: true, CommonPoints: 150, Method: "placements", ModelValue: mv, NullValue: nv,
+				Diff: mv - nv, Low: mv - nv - 0.019, High: mv - nv + 0.018, Reading: ReadingAbove}}}
+	}
+	inv, env := an("inverse", 0.165, 0.110), an("env", 0.835, 0.110)
+	m := MetricInfo{Key: "auc", Label: "AUC", Kind: MetricAUC}
+	noSkill := "its own AUC, 0.165, is at or below 0.5, that of a random ranking, so being above a null that does worse still is no sign of skill"
+	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &inv), []string{"On base, AUC of inverse is above distance_null beyond noise: +0.055 (0.165 against 0.110, 95% interval +0.036 to +0.073); but " + noSkill + "."}, nil)
+	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &env), []string{"is above distance_null beyond noise: +0.725 (0.835 against 0.110, 95% interval +0.706 to +0.743)."}, []string{"no sign of skill"})
+	s := &Sensitivity{BaseExtent: "base", AboveNull: []AboveNull{env, inv}}
+	checkWords(t, "headline", aboveNullHeadline(s), []string{"inverse is above distance_null beyond noise on base (AUC difference +0.055, 95% interval +0.036 to +0.073) but " + noSkill}, nil)
+	checkWords(t, "reply", reviewerNullText(s),
+		[]string{"On the base extent the AUC of env (difference +0.725, 95% interval +0.706 to +0.743) is above that of distance_null beyond noise.",
+			"On the base extent the AUC of inverse (difference +0.055, 95% interval +0.036 to +0.073; AUC 0.165) is above that of distance_null beyond noise but at or below 0.5, that of a random ranking, so on that extent this shows only that distance_null ranks the test records worse still, not skill."},
+		[]string{"AUCs of env"})
+	g := inv.Gaps[0]
+	checkWords(t, "table", readingWords(MetricAUC, &g), []string{"above (model at or below 0.5, random: no sign of skill)"}, nil)
+	// A partial ROC ratio of 0.9 is below random (1); one of 1.2 is not.
+	g.ModelValue = 0.9
+	checkWords(t, "table", readingWords(MetricPartialROC, &g), []string{"above (model at or below 1, random: no sign of skill)"}, nil)
+	g.ModelValue = 1.2
+	if w := readingWords(MetricPartialROC, &g); w != "above" {
+		t.Errorf("partial ROC ratio 1.2 above the null reads %q, want \"above\"", w)
+	}
+	// The Boyce index has no random level here: nothing is added.
+	g.ModelValue = -0.5
+	if w := readingWords(MetricBoyce, &g); w != "above" {
+		t.Errorf("Boyce reads %q, want \"above\"", w)
+	}
+}
+
 // TestTinyNullGapNotPrintedAsZero: a model that nearly copies the null
 // has its gap printed with the digits and sign that tell it from 0 ("R
 // is not above distance_null beyond noise on base (AUC difference
