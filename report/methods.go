@@ -548,6 +548,9 @@ func resultNumbers(r *Results) string {
 		if mv.BaseDefined {
 			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
+		if c := belowRandomClause(r, sp); c != "" {
+			onBase += "; " + c
+		}
 		t := fmt.Sprintf("AUC of %s %s (%s) and was %s", m, rangeOver(sp.Min, sp.Max, "over", sp.N), onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""

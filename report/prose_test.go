@@ -1067,3 +1067,33 @@ func TestExplorerOpensOnTheReference(t *testing.T) {
 		t.Errorf("explorer opens on %q, want the reference extent %q", got, s.BaseExtent)
 	}
 }
+
+// TestAUCBelowRandomBeyondNoise: the headline and the methods text say on
+// which extents a model's AUC is below 0.5 beyond noise (its t interval
+// from the placements wholly below 0.5), where it is so on some extents
+// only; an AUC below 0.5 within noise, or on fewer than 10 test points
+// (our cut-off), is not named. The known-answer study of a model that
+// rates the far background above the presences read "ranged 0.273–0.831"
+// with nothing more. Intervals worked by hand with t(0.975, 39) = 2.023:
+// 0.30 + 2.023 × 0.02 = 0.340 < 0.5 (named); 0.48 + 2.023 × 0.02 = 0.520
+// (not named); 0.30 on 9 points (not read).
+func TestAUCBelowRandomBeyondNoise(t *testing.T) {
+	r := &Results{}
+	sp := &Spread{Metric: "auc", Model: "flip", N: 4, Extents: []string{"base", "wide", "mid", "few"}, Min: 0.30, Max: 0.80}
+	for _, c := range []struct {
+		ext     string
+		auc, se float64
+		nPoints int
+	}{{"base", 0.80, 0.02, 40}, {"wide", 0.30, 0.02, 40}, {"mid", 0.48, 0.02, 40}, {"few", 0.30, 0.02, 9}} {
+		r.Scores = append(r.Scores, Score{Model: "flip", Extent: c.ext, Scored: true, AUC: c.auc, AUCSE: c.se, TestPoints: c.nPoints})
+	}
+	if got := belowRandom(r, sp); len(got) != 1 || got[0] != "wide" {
+		t.Errorf("below random on %v, want [wide]", got)
+	}
+	checkWords(t, "clause", belowRandomClause(r, sp),
+		[]string{"below 0.5, the AUC of a random ranking, beyond noise on wide, its 95% interval from the test points wholly below 0.5"}, []string{"mid", "few"})
+	r.Scores[1].AUC = 0.46 // 0.46 + 0.040 = 0.500: not wholly below
+	if c := belowRandomClause(r, sp); c != "" {
+		t.Errorf("AUC 0.46 (SE 0.02, 40 points) read below random: %q", c)
+	}
+}
