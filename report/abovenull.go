@@ -126,9 +126,15 @@ func readingWords(k MetricKind, g *NullGap) string {
 	w := strings.ReplaceAll(g.Reading, "_", " ")
 	if aboveWithoutSkill(k, g) {
 		lvl, _ := randomLevel(k)
-		w += fmt.Sprintf(" (model at or below %s, random: no sign of skill)", fmtG(lvl))
+		w += noSkillTag(lvl)
 	}
 	return w
+}
+
+// noSkillTag follows "above" in a table where the model scores at or below
+// lvl, that of a random ranking (aboveWithoutSkill).
+func noSkillTag(lvl float64) string {
+	return fmt.Sprintf(" (model at or below %s, random: no sign of skill)", fmtG(lvl))
 }
 
 // kindOf is the kind of the metric of key among kinds (buildMetrics'),

@@ -181,6 +181,12 @@ func TestSummaryAboveWithoutSkill(t *testing.T) {
 		[]string{"AUC was above the null beyond noise for 2 of 2 study-model pairs",
 			"Of the 2 above, 1 (inverse of study rev) has an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still, which is no sign of skill."},
 		[]string{"m1 of study alpha"})
+	for _, r := range s.Rows {
+		want := map[string]string{"alpha": "above", "rev": "above (model at or below 0.5, random: no sign of skill)"}[r.Study]
+		if got := pageRowOf(r, "").Reading; got != want {
+			t.Errorf("study %s: the page reads %q, want %q", r.Study, got, want)
+		}
+	}
 }
 
 // TestSummarizeCounts checks the counts against the verdicts worked out
