@@ -146,6 +146,30 @@ func kindOf(kinds map[string]MetricKind, key string) MetricKind {
 	return MetricBoyce
 }
 
+// noSkillCount says on how many of the extents where an reads the model
+// above the null the model itself scores at or below random
+// (aboveWithoutSkill), as " (on 1 of them the model itself is at or below
+// 0.5, ...)"; "" when on none. The counts alone counted the null plus
+// noise "above" the null on an extent where both ranked worse than
+// random (AUC 0.082 against 0.052).
+func (an *AboveNull) noSkillCount(k MetricKind) string {
+	n := 0
+	for i := range an.Gaps {
+		if aboveWithoutSkill(k, &an.Gaps[i]) {
+			n++
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	lvl, _ := randomLevel(k)
+	if an.Above == 1 {
+		// "on 1 of them" would count one of one.
+		return fmt.Sprintf(" (there the model itself is at or below %s, random: no sign of skill)", fmtG(lvl))
+	}
+	return fmt.Sprintf(" (on %d of them the model itself is at or below %s, random: no sign of skill)", n, fmtG(lvl))
+}
+
 // gapReading reads a defined interval against 0.
 func gapReading(lo, hi float64) string {
 	switch {
@@ -295,7 +319,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
 		}
 		small, large := an.gapEnds()
-		counts := fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d%s", an.Above, an.NotAbove, an.Below, notTold)
+		counts := fmt.Sprintf("the model is above the null beyond noise on %d%s, within noise on %d and below on %d%s", an.Above, an.noSkillCount(m.Kind), an.NotAbove, an.Below, notTold)
 		switch {
 		case an.Above+an.NotAbove+an.Below > 0:
 		case kb == 0:
@@ -482,7 +506,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {
-				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.NotAbove, an.Below)
+				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read%s, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.noSkillCount(MetricAUC), an.NotAbove, an.Below)
 			}
 		}
 		parts = append(parts, part)

@@ -942,6 +942,20 @@ func TestAboveNullWithoutSkill(t *testing.T) {
 		[]string{"On the base extent the AUC of env (difference +0.725, 95% interval +0.706 to +0.743) is above that of distance_null beyond noise.",
 			"On the base extent the AUC of inverse (difference +0.055, 95% interval +0.036 to +0.073; AUC 0.165) is above that of distance_null beyond noise but at or below 0.5, that of a random ranking, so on that extent this shows only that distance_null ranks the test records worse still, not skill."},
 		[]string{"AUCs of env"})
+	// The counts across extents say how many of the extents read above
+	// are so: the null plus noise was above on 1 extent where both ranked
+	// worse than random (AUC 0.082 against 0.052, the known-answer run).
+	nn := an("nullnoise", 0.114, 0.110)
+	nn.BaseReading, nn.Gaps[0].Reading, nn.Gaps[0].Low, nn.Gaps[0].High = ReadingNotAbove, ReadingNotAbove, -0.006, 0.015
+	nn.Gaps = append(nn.Gaps, NullGap{Extent: "region_minus50km", AreaKm2: 327000, Defined: true, CommonPoints: 107, Method: "placements",
+		ModelValue: 0.082, NullValue: 0.052, Diff: 0.029, Low: 0.017, High: 0.042, Reading: ReadingAbove})
+	nn.Defined, nn.Above, nn.NotAbove, nn.SmallestExtent = 2, 1, 1, "region_minus50km"
+	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &nn), []string{"the model is above the null beyond noise on 1 (there the model itself is at or below 0.5, random: no sign of skill), within noise on 1 and below on 0"}, nil)
+	checkWords(t, "headline", aboveNullHeadline(&Sensitivity{BaseExtent: "base", AboveNull: []AboveNull{nn}}),
+		[]string{"nullnoise is above it beyond noise on 1 of the 2 extents read (there the model itself is at or below 0.5, random: no sign of skill), within noise on 1"}, nil)
+	env.Gaps = append(env.Gaps, nn.Gaps[1])
+	env.Defined, env.Above, env.SmallestExtent = 2, 2, "region_minus50km"
+	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &env), []string{"above the null beyond noise on 2 (on 1 of them the model itself is at or below 0.5, random: no sign of skill), within noise on 0"}, nil)
 	g := inv.Gaps[0]
 	checkWords(t, "table", readingWords(MetricAUC, &g), []string{"above (model at or below 0.5, random: no sign of skill)"}, nil)
 	// A partial ROC ratio of 0.9 is below random (1); one of 1.2 is not.
