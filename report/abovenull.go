@@ -121,8 +121,13 @@ func noSkillClause(k MetricKind, label string, g *NullGap) string {
 
 // readingWords is g's reading as a table shows it ("not above"), with
 // "above" qualified where the model itself scores no better than random
-// (aboveWithoutSkill).
+// (aboveWithoutSkill), and "the same" for a difference and interval of 0.
 func readingWords(k MetricKind, g *NullGap) string {
+	if g.Reading == ReadingNotAbove && g.zero() {
+		// A copy of the null: "not above" would suggest noise where the
+		// sentences say "the same" (every placement equal).
+		return "the same (difference and interval 0)"
+	}
 	w := strings.ReplaceAll(g.Reading, "_", " ")
 	if aboveWithoutSkill(k, g) {
 		lvl, _ := randomLevel(k)
@@ -594,14 +599,15 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 // aboveNullNote explains the table.
 var aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(Student t 95% interval, n − 1 degrees of freedom), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
-	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
+	"\"above\": the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\", or 1 for the partial ROC ratio, where the model's own score is no better than a random ranking); " +
+	"\"not above\": it includes 0; \"below\": it lies wholly below 0; \"the same\": the difference and its interval are 0 (a copy of the null); " +
 	fmt.Sprintf("\"not judged\": fewer than %d common test points (%d for the partial ROC ratio), or an interval from fewer than %d formed resamples; the difference is shown, its interval is not read (our cut-offs). ",
 		MinPairedPoints, MinResampledPoints, MinPercentileResamples) +
 	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
-	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0, \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
+	"from the per-point placements: \"above\" when the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\" where the model's own AUC is no better than a random ranking), \"not above\" when it includes 0, " +
+	"\"below\" when it lies wholly below 0, \"the same\" when the difference and its interval are 0 (a copy of the null), \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
 	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -965,6 +965,13 @@ func TestAboveNullWithoutSkill(t *testing.T) {
 	if w := readingWords(MetricPartialROC, &g); w != "above" {
 		t.Errorf("partial ROC ratio 1.2 above the null reads %q, want \"above\"", w)
 	}
+	// A copy of the null (difference and interval 0) reads as the
+	// sentences say, "the same", not "not above" (the known-answer
+	// study's null of the user's, the same file as a model).
+	same := NullGap{Extent: "base", Defined: true, CommonPoints: 150, Method: "placements", ModelValue: 0.110, NullValue: 0.110, Reading: ReadingNotAbove}
+	if w := readingWords(MetricAUC, &same); w != "the same (difference and interval 0)" {
+		t.Errorf("a copy of the null reads %q", w)
+	}
 	// The Boyce index has no random level here: nothing is added.
 	g.ModelValue = -0.5
 	if w := readingWords(MetricBoyce, &g); w != "above" {
