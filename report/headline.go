@@ -388,7 +388,12 @@ func belowRandomClause(r *Results, sp *Spread) string {
 		return ""
 	}
 	on := fmt.Sprintf("%d of the %d extents", len(below), sp.N)
-	if len(below) <= 3 {
+	switch {
+	case len(below) == sp.N && sp.N > 1:
+		// "6 of the 6 extents" was written for a model below random on
+		// every extent.
+		on = allOfNoun(sp.N, "extent")
+	case len(below) <= 3:
 		on = joinList(below)
 	}
 	return fmt.Sprintf("below 0.5, the AUC of a random ranking, beyond noise on %s, its 95%% interval from the test points wholly below 0.5", on)

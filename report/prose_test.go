@@ -1113,6 +1113,13 @@ func TestAUCBelowRandomBeyondNoise(t *testing.T) {
 	}
 	checkWords(t, "clause", belowRandomClause(r, sp),
 		[]string{"below 0.5, the AUC of a random ranking, beyond noise on wide, its 95% interval from the test points wholly below 0.5"}, []string{"mid", "few"})
+	// Below on every extent: "all 4 extents", not "4 of the 4 extents".
+	all := &Spread{Metric: "auc", Model: "flip", N: 4, Extents: []string{"base", "wide", "mid", "few"}, Min: 0.30, Max: 0.30}
+	rAll := &Results{}
+	for _, id := range all.Extents {
+		rAll.Scores = append(rAll.Scores, Score{Model: "flip", Extent: id, Scored: true, AUC: 0.30, AUCSE: 0.02, TestPoints: 40})
+	}
+	checkWords(t, "clause", belowRandomClause(rAll, all), []string{"beyond noise on all 4 extents, its"}, []string{"4 of the 4"})
 	r.Scores[1].AUC = 0.46 // 0.46 + 0.040 = 0.500: not wholly below
 	if c := belowRandomClause(r, sp); c != "" {
 		t.Errorf("AUC 0.46 (SE 0.02, 40 points) read below random: %q", c)
