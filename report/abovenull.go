@@ -172,7 +172,11 @@ func (an *AboveNull) noSkillCount(k MetricKind) string {
 		// "on 1 of them" would count one of one.
 		return fmt.Sprintf(" (there the model itself is at or below %s, random: no sign of skill)", fmtG(lvl))
 	}
-	return fmt.Sprintf(" (on %d of them the model itself is at or below %s, random: no sign of skill)", n, fmtG(lvl))
+	on := fmt.Sprintf("on %d of them", n)
+	if n == an.Above {
+		on = "on each of them" // "on 2 of them" of 2 reads as a part
+	}
+	return fmt.Sprintf(" (%s the model itself is at or below %s, random: no sign of skill)", on, fmtG(lvl))
 }
 
 // gapReading reads a defined interval against 0.

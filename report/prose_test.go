@@ -956,6 +956,11 @@ func TestAboveNullWithoutSkill(t *testing.T) {
 	env.Gaps = append(env.Gaps, nn.Gaps[1])
 	env.Defined, env.Above, env.SmallestExtent = 2, 2, "region_minus50km"
 	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &env), []string{"above the null beyond noise on 2 (on 1 of them the model itself is at or below 0.5, random: no sign of skill), within noise on 0"}, nil)
+	// Every extent read above is so: "on each of them".
+	inv.Gaps = append(inv.Gaps, NullGap{Extent: "region_minus50km", AreaKm2: 327000, Defined: true, CommonPoints: 107, Method: "placements",
+		ModelValue: 0.155, NullValue: 0.052, Diff: 0.103, Low: 0.087, High: 0.120, Reading: ReadingAbove})
+	inv.Defined, inv.Above, inv.SmallestExtent = 2, 2, "region_minus50km"
+	checkWords(t, "sentence", aboveNullSentence(&Results{}, m, &inv), []string{"above the null beyond noise on 2 (on each of them the model itself is at or below 0.5"}, []string{"on 2 of them"})
 	g := inv.Gaps[0]
 	checkWords(t, "table", readingWords(MetricAUC, &g), []string{"above (model at or below 0.5, random: no sign of skill)"}, nil)
 	// A partial ROC ratio of 0.9 is below random (1); one of 1.2 is not.
