@@ -183,7 +183,8 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 			fewest = sc.TestPoints
 		}
 	}
-	cs.Sentence = chainSentence(&cs, who, a.r.Settings.ToleranceAUC) + fewPointsClause(fewest)
+	tol := a.r.Settings.ToleranceAUC
+	cs.Sentence = chainSentence(&cs, who, tol) + fewPointsClause(fewest, sharesGiven(&cs, tol))
 	return cs, warns
 }
 
@@ -211,6 +212,9 @@ func chainSentence(cs *ChainSummary, who string, tol float64) string {
 	if !cs.SharesDefined {
 		return head + ": it barely changes, so shares are not defined."
 	}
+	if sharesGiven(cs, tol) {
+		return sharesSentence(cs, head)
+	}
 	if f3(cs.StartAUC) == f3(cs.EndAUC) {
 		// The change is below the three decimals the sentence shows:
 		// "goes from 0.440 to 0.440; 242% of the gain comes from" named
@@ -225,9 +229,19 @@ func chainSentence(cs *ChainSummary, who string, tol float64) string {
 		return fmt.Sprintf("%s: it changes by %s in all, which the three decimals do not show, so no share of the change is given (each step is in the table).",
 			head, ch)
 	}
-	if tol > 0 && math.Abs(cs.Change) <= tol {
-		return negligibleChainSentence(cs, head, tol)
-	}
+	return negligibleChainSentence(cs, head, tol)
+}
+
+// sharesGiven tells whether the sentence of chain cs gives shares of its
+// change: not when they are undefined, when the change does not show in
+// three decimals, or when it is within the AUC tolerance tol.
+func sharesGiven(cs *ChainSummary, tol float64) bool {
+	return cs.SharesDefined && f3(cs.StartAUC) != f3(cs.EndAUC) && !(tol > 0 && math.Abs(cs.Change) <= tol)
+}
+
+// sharesSentence ends the sentence of chain cs (its opening head) with
+// the step of largest share and what its ring's AUC means.
+func sharesSentence(cs *ChainSummary, head string) string {
 	st := cs.Steps[cs.Largest]
 	word := "gain"
 	if cs.Change < 0 {
@@ -304,11 +318,18 @@ func slopeClause(cs *ChainSummary) string {
 // its fewest-pointed scored member has fewer than MinPairedPoints (our
 // cut-off for judging a paired difference): a large share there is one or
 // two points moving, which the chain describes but nothing tests.
-func fewPointsClause(fewest int) string {
+// shares says whether the sentence gave shares: when it did not, the
+// clause does not speak of them ("no share of the change is given" was
+// followed by "the shares describe them").
+func fewPointsClause(fewest int, shares bool) string {
 	if fewest < 0 || fewest >= MinPairedPoints {
 		return ""
 	}
-	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): the shares describe them and are not judged.", fewest, Plural(fewest), MinPairedPoints)
+	what := "the shares describe them and are not judged"
+	if !shares {
+		what = "they are described, not judged"
+	}
+	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): %s.", fewest, Plural(fewest), MinPairedPoints, what)
 }
 
 // ringClause says what a ring's AUC means, following its value: whether

@@ -731,6 +731,12 @@ func TestChainSentenceNegligibleChange(t *testing.T) {
 	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC),
 		[]string{"it changes by +0.010 in all, within our tolerance of ±0.02", "Its steps go both ways and cancel: the largest, +0.160, comes from the ring hull_100km minus hull."},
 		[]string{"of the gain"})
+	// On few test points the closing clause does not speak of shares
+	// the sentence did not give (the robust study on 5 test points wrote
+	// "no share of the change is given ... the shares describe them").
+	checkWords(t, "few points", fewPointsClause(5, sharesGiven(&cs, DefaultToleranceAUC)),
+		[]string{"as few as 5 test points, fewer than the 10 we judge a difference on (our cut-off): they are described, not judged."}, []string{"shares"})
+	checkWords(t, "few points", fewPointsClause(5, sharesGiven(&cs, 0.005)), []string{"the shares describe them"}, nil)
 	// Past a tolerance set for the run (0.005), the shares are given.
 	checkWords(t, "chain", chainSentence(&cs, "model", 0.005), []string{"1600% of the gain comes from the ring hull_100km minus hull"}, []string{"within"})
 }
@@ -1856,7 +1862,7 @@ func TestOneExtentBesideUnscoredBase(t *testing.T) {
 func TestOneTestPointSingular(t *testing.T) {
 	s := &Sensitivity{TestPoints: []int{1, 1, 1}}
 	checkWords(t, "test point text", testPointText(s), []string{"1 test point on each"}, []string{"points"})
-	checkWords(t, "chain clause", fewPointsClause(1), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
+	checkWords(t, "chain clause", fewPointsClause(1, true), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
 	mv := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", Tolerance: 0.05, Largest: 0,
 		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: 0.004, High: 0.004, Position: positionTooFew}}}
 	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"on hull, not judged, too few common test points: 1, our cut-off 10"}, []string{"1 common test points", "interval"})
