@@ -87,6 +87,98 @@ type NullGap struct {
 	nFormed int
 }
 
+// randomLevel is the score of a random ranking on metric kind k (an AUC
+// of 0.5, a partial ROC ratio of 1), and false for a metric without one.
+func randomLevel(k MetricKind) (float64, bool) {
+	switch k {
+	case MetricAUC, MetricAUCUnweighted:
+		return 0.5, true
+	case MetricPartialROC:
+		return 1, true
+	}
+	return 0, false
+}
+
+// aboveWithoutSkill tells whether g reads the model above the null while
+// the model itself scores no better than a random ranking (AUC at most
+// 0.5, partial ROC ratio at most 1): the null then does worse than random,
+// and being above it is no sign of skill. The known-answer study of a
+// model that is the reverse of a good one (AUC 0.165) read "above
+// distance_null beyond noise" on test points far from the training
+// points, where the null's AUC was 0.110.
+func aboveWithoutSkill(k MetricKind, g *NullGap) bool {
+	lvl, ok := randomLevel(k)
+	return ok && g != nil && g.Defined && g.Reading == ReadingAbove && g.ModelValue <= lvl
+}
+
+// noSkillClause is the words that follow "above the null" when
+// aboveWithoutSkill holds: the model's own score against random.
+func noSkillClause(k MetricKind, label string, g *NullGap) string {
+	lvl, _ := randomLevel(k)
+	return fmt.Sprintf("its own %s, %s, is at or below %s, that of a random ranking, so being above a null that does worse still is no sign of skill",
+		label, f3(g.ModelValue), fmtG(lvl))
+}
+
+// readingWords is g's reading as a table shows it ("not above"), with
+// "above" qualified where the model itself scores no better than random
+// (aboveWithoutSkill), and "the same" for a difference and interval of 0.
+func readingWords(k MetricKind, g *NullGap) string {
+	if g.Reading == ReadingNotAbove && g.zero() {
+		// A copy of the null: "not above" would suggest noise where the
+		// sentences say "the same" (every placement equal).
+		return "the same (difference and interval 0)"
+	}
+	w := strings.ReplaceAll(g.Reading, "_", " ")
+	if aboveWithoutSkill(k, g) {
+		lvl, _ := randomLevel(k)
+		w += noSkillTag(lvl)
+	}
+	return w
+}
+
+// noSkillTag follows "above" in a table where the model scores at or below
+// lvl, that of a random ranking (aboveWithoutSkill).
+func noSkillTag(lvl float64) string {
+	return fmt.Sprintf(" (model at or below %s, random: no sign of skill)", fmtG(lvl))
+}
+
+// kindOf is the kind of the metric of key among kinds (buildMetrics'),
+// or MetricBoyce, which has no random level, for a key not there.
+func kindOf(kinds map[string]MetricKind, key string) MetricKind {
+	if k, ok := kinds[key]; ok {
+		return k
+	}
+	return MetricBoyce
+}
+
+// noSkillCount says on how many of the extents where an reads the model
+// above the null the model itself scores at or below random
+// (aboveWithoutSkill), as " (on 1 of them the model itself is at or below
+// 0.5, ...)"; "" when on none. The counts alone counted the null plus
+// noise "above" the null on an extent where both ranked worse than
+// random (AUC 0.082 against 0.052).
+func (an *AboveNull) noSkillCount(k MetricKind) string {
+	n := 0
+	for i := range an.Gaps {
+		if aboveWithoutSkill(k, &an.Gaps[i]) {
+			n++
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	lvl, _ := randomLevel(k)
+	if an.Above == 1 {
+		// "on 1 of them" would count one of one.
+		return fmt.Sprintf(" (there the model itself is at or below %s, random: no sign of skill)", fmtG(lvl))
+	}
+	on := fmt.Sprintf("on %d of them", n)
+	if n == an.Above {
+		on = "on each of them" // "on 2 of them" of 2 reads as a part
+	}
+	return fmt.Sprintf(" (%s the model itself is at or below %s, random: no sign of skill)", on, fmtG(lvl))
+}
+
 // gapReading reads a defined interval against 0.
 func gapReading(lo, hi float64) string {
 	switch {
@@ -204,8 +296,12 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s)", an.BaseExtent, score, an.Model, null,
 			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if aboveWithoutSkill(m.Kind, g) {
+			fmt.Fprintf(&b, "; but %s", noSkillClause(m.Kind, score, g))
+		}
+		b.WriteString(".")
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
@@ -232,7 +328,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
 		}
 		small, large := an.gapEnds()
-		counts := fmt.Sprintf("the model is above the null beyond noise on %d, within noise on %d and below on %d%s", an.Above, an.NotAbove, an.Below, notTold)
+		counts := fmt.Sprintf("the model is above the null beyond noise on %d%s, within noise on %d and below on %d%s", an.Above, an.noSkillCount(m.Kind), an.NotAbove, an.Below, notTold)
 		switch {
 		case an.Above+an.NotAbove+an.Below > 0:
 		case kb == 0:
@@ -422,6 +518,9 @@ func aboveNullHeadline(s *Sensitivity) string {
 		}
 		part := fmt.Sprintf("%s %s %s beyond noise on %s (AUC difference %s, 95%% interval %s to %s)", an.Model, verb, an.Null, an.BaseExtent,
 			signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0))
+		if aboveWithoutSkill(MetricAUC, g) {
+			part += " but " + noSkillClause(MetricAUC, "AUC", g)
+		}
 		if !notJudgedPosition(an.BaseReading) && g.zero() {
 			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
 		}
@@ -445,7 +544,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {
-				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.NotAbove, an.Below)
+				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read%s, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.noSkillCount(MetricAUC), an.NotAbove, an.Below)
 			}
 		}
 		parts = append(parts, part)
@@ -465,6 +564,10 @@ func aboveNullRows(r *Results) [][]cell {
 	if r.Sensitivity == nil {
 		return nil
 	}
+	kinds := map[string]MetricKind{}
+	for _, m := range buildMetrics(r) {
+		kinds[m.Key] = m.Kind
+	}
 	for _, an := range r.Sensitivity.AboveNull {
 		for _, g := range an.Gaps {
 			row := []cell{tc(an.Metric), tc(an.Model), tc(ModelLabel(r, an.Null)), tc(g.Extent), areaCell(g.AreaKm2), ic(g.CommonPoints)}
@@ -473,7 +576,7 @@ func aboveNullRows(r *Results) [][]cell {
 				// The difference describes; its interval is not read.
 				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), dash, tc(g.Method), tc("not judged ("+g.why()+")"))
 			case g.Defined:
-				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(strings.ReplaceAll(g.Reading, "_", " ")))
+				row = append(row, nc(g.ModelValue, 3), nc(g.NullValue, 3), nc(g.Diff, 3), tc(signedVs(g.Low, 0)+" to "+signedVs(g.High, 0)), tc(g.Method), tc(readingWords(kindOf(kinds, an.Metric), &g)))
 			default:
 				row = append(row, dash, dash, dash, dash, tc(g.Method), tc("undefined"))
 			}
@@ -513,7 +616,7 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 				continue
 			}
 			has = true
-			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), strings.ReplaceAll(g.Reading, "_", " "))
+			text := fmt.Sprintf("%s (%s to %s) %s", signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), readingWords(MetricAUC, g))
 			if notJudgedPosition(g.Reading) {
 				text = fmt.Sprintf("%s, not judged (%s)", signedSmall(g.Diff), g.why())
 			}
@@ -529,14 +632,15 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 // aboveNullNote explains the table.
 var aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(Student t 95% interval, n − 1 degrees of freedom), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
-	"\"above\": the interval lies wholly above 0; \"not above\": it includes 0; \"below\": it lies wholly below 0; " +
+	"\"above\": the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\", or 1 for the partial ROC ratio, where the model's own score is no better than a random ranking); " +
+	"\"not above\": it includes 0; \"below\": it lies wholly below 0; \"the same\": the difference and its interval are 0 (a copy of the null); " +
 	fmt.Sprintf("\"not judged\": fewer than %d common test points (%d for the partial ROC ratio), or an interval from fewer than %d formed resamples; the difference is shown, its interval is not read (our cut-offs). ",
 		MinPairedPoints, MinResampledPoints, MinPercentileResamples) +
 	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
-	"from the per-point placements: \"above\" when the interval lies wholly above 0, \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0, \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
+	"from the per-point placements: \"above\" when the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\" where the model's own AUC is no better than a random ranking), \"not above\" when it includes 0, " +
+	"\"below\" when it lies wholly below 0, \"the same\" when the difference and its interval are 0 (a copy of the null), \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
 	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."

@@ -152,6 +152,9 @@ type BatchRow struct {
 	// NullNotJudged says why the null comparison is not read
 	// (NullGap.NotJudged); "" when it is.
 	NullNotJudged string
+	// NullNoSkill: read above the null while the model's own AUC is at
+	// most 0.5 (aboveWithoutSkill), so the reading shows no skill.
+	NullNoSkill bool
 	// Warnings is the number of the study's warnings (StudySummary.Warnings).
 	Warnings int
 }
@@ -215,6 +218,9 @@ type BatchCounts struct {
 	// (not read), the rest of NullPairs undefined. NullDistance counts the
 	// pairs whose null is the distance-only null.
 	NullPairs, Above, NotAbove, Below, TooFew, NullDistance int
+	// AboveNoSkill counts the pairs of Above whose model's own AUC is at
+	// most 0.5 (BatchRow.NullNoSkill).
+	AboveNoSkill int
 }
 
 // Summarize builds the summary across studies. Studies without results
@@ -321,6 +327,9 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 			switch row.NullReading {
 			case ReadingAbove:
 				s.Counts.Above++
+				if row.NullNoSkill {
+					s.Counts.AboveNoSkill++
+				}
 			case ReadingNotAbove:
 				s.Counts.NotAbove++
 			case ReadingBelow:
@@ -439,6 +448,7 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.NullDefined = true
 			row.NullDiff, row.NullLow, row.NullHigh = g.Diff, g.Low, g.High
 			row.NullReading, row.NullNotJudged = an.BaseReading, g.why()
+			row.NullNoSkill = aboveWithoutSkill(MetricAUC, g)
 		}
 	}
 	return row

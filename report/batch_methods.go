@@ -77,7 +77,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	}
 	if c.NullPairs > 0 {
 		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew))+s.noNullSentence())
+			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew))+s.noSkillSentence()+s.noNullSentence())
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},
@@ -344,6 +344,25 @@ func nullTail(tooFew, undefined int) string {
 		out += fmt.Sprintf("; on %d no difference could be formed", undefined)
 	}
 	return out
+}
+
+// noSkillSentence names the study-model pairs counted above the null
+// whose model's own AUC on the base extent is at most 0.5
+// (BatchRow.NullNoSkill): above a null that ranks worse than random, they
+// show no skill, which the count alone would suggest. "" when there are
+// none.
+func (s *BatchSummary) noSkillSentence() string {
+	var pairs []string
+	for _, r := range s.Rows {
+		if r.NullNoSkill {
+			pairs = append(pairs, r.Model+" of study "+r.Study)
+		}
+	}
+	if len(pairs) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" Of the %d above, %d (%s) %s an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still, which is no sign of skill.",
+		s.Counts.Above, len(pairs), joinList(pairs), map[bool]string{true: "has", false: "have"}[len(pairs) == 1])
 }
 
 // noNullSentence names the study-model pairs that have no comparison

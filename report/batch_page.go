@@ -136,6 +136,10 @@ func pageRowOf(r BatchRow, link string) pageRow {
 	}
 	if r.Null != "" {
 		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
+		if r.NullNoSkill {
+			// As in the study's own tables (readingWords).
+			pr.Reading += noSkillTag(0.5)
+		}
 	}
 	if r.NullDefined {
 		pr.Null = signedSmall(r.NullDiff) + " (" + r.Null + ")"

@@ -109,7 +109,8 @@ func handStudy(tol float64, models ...handModel) *Results {
 			}
 			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
 				BaseReading: reading,
-				Gaps:        []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: reading, CommonPoints: hm.points}}}
+				Gaps: []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: reading, CommonPoints: hm.points,
+					ModelValue: hm.aucs["base"], NullValue: hm.aucs["base"] - n.diff}}}
 			s.AboveNull = append(s.AboveNull, an)
 		}
 	}
@@ -147,6 +148,44 @@ func handBatch() []StudyResult {
 			handModel{name: "m2", aucs: auc(0.79, 0.72), effects: []effect{{"wide", -0.07, -0.09, -0.05}}, null: &effect{"base", -0.05, -0.08, -0.02}, points: 38})},
 		{ID: "zeta", Report: "zeta/report.html", Results: handStudy(T, handModel{name: "m2", aucs: auc(0.66, 0.67),
 			effects: []effect{{"wide", 0.01, -0.005, 0.015}}})},
+	}
+}
+
+// TestSummaryAboveWithoutSkill: a model above the null beyond noise whose
+// own AUC on the base extent is at most 0.5 is counted above, and the
+// sentence says that this is no sign of skill (the known-answer batch
+// counted the reverse of a good model, AUC 0.165, above a null of AUC
+// 0.110 with nothing said). Values worked by hand: AUC 0.40 on base,
+// +0.10 (0.05 to 0.15) above the null.
+func TestSummaryAboveWithoutSkill(t *testing.T) {
+	const T = DefaultToleranceAUC
+	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
+	studies := []StudyResult{
+		{ID: "alpha", Report: "alpha/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}, points: 40})},
+		{ID: "rev", Report: "rev/report.html", Results: handStudy(T, handModel{name: "inverse", aucs: auc(0.40, 0.30),
+			effects: []effect{{"wide", -0.10, -0.13, -0.07}}, null: &effect{"base", 0.10, 0.05, 0.15}, points: 40})},
+	}
+	s, err := Summarize(studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Counts.Above != 2 || s.Counts.AboveNoSkill != 1 {
+		t.Errorf("above %d, of them without skill %d; want 2 and 1", s.Counts.Above, s.Counts.AboveNoSkill)
+	}
+	var b strings.Builder
+	for _, sec := range s.methodsSections() {
+		b.WriteString(strings.Join(sec.Paragraphs, " "))
+	}
+	checkWords(t, "summary methods", b.String(),
+		[]string{"AUC was above the null beyond noise for 2 of 2 study-model pairs",
+			"Of the 2 above, 1 (inverse of study rev) has an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still, which is no sign of skill."},
+		[]string{"m1 of study alpha"})
+	for _, r := range s.Rows {
+		want := map[string]string{"alpha": "above", "rev": "above (model at or below 0.5, random: no sign of skill)"}[r.Study]
+		if got := pageRowOf(r, "").Reading; got != want {
+			t.Errorf("study %s: the page reads %q, want %q", r.Study, got, want)
+		}
 	}
 }
 

@@ -183,7 +183,8 @@ func (a *analysis) chainSummary(chain, model string, rings []Ring) (ChainSummary
 			fewest = sc.TestPoints
 		}
 	}
-	cs.Sentence = chainSentence(&cs, who) + fewPointsClause(fewest)
+	tol := a.r.Settings.ToleranceAUC
+	cs.Sentence = chainSentence(&cs, who, tol) + fewPointsClause(fewest, sharesGiven(&cs, tol))
 	return cs, warns
 }
 
@@ -201,14 +202,18 @@ func (a *analysis) chainScore(model, extent string) *Score {
 }
 
 // chainSentence says how AUC moves along the chain cs of a "model" or a
-// "null" (who).
-func chainSentence(cs *ChainSummary, who string) string {
+// "null" (who); tol is the run's AUC tolerance, the difference the user
+// treats as negligible: shares of a change within it are not given.
+func chainSentence(cs *ChainSummary, who string, tol float64) string {
 	n := len(cs.Members)
 	head := fmt.Sprintf("Along chain %s, AUC of %s %s goes from %s (%s, %s km²) to %s (%s, %s km²)",
 		cs.Chain, who, cs.Model, f3(cs.StartAUC), cs.Members[0], fmtArea(cs.MemberAreasKm2[0]),
 		f3(cs.EndAUC), cs.Members[n-1], fmtArea(cs.MemberAreasKm2[n-1]))
 	if !cs.SharesDefined {
 		return head + ": it barely changes, so shares are not defined."
+	}
+	if sharesGiven(cs, tol) {
+		return sharesSentence(cs, head)
 	}
 	if f3(cs.StartAUC) == f3(cs.EndAUC) {
 		// The change is below the three decimals the sentence shows:
@@ -224,6 +229,19 @@ func chainSentence(cs *ChainSummary, who string) string {
 		return fmt.Sprintf("%s: it changes by %s in all, which the three decimals do not show, so no share of the change is given (each step is in the table).",
 			head, ch)
 	}
+	return negligibleChainSentence(cs, head, tol)
+}
+
+// sharesGiven tells whether the sentence of chain cs gives shares of its
+// change: not when they are undefined, when the change does not show in
+// three decimals, or when it is within the AUC tolerance tol.
+func sharesGiven(cs *ChainSummary, tol float64) bool {
+	return cs.SharesDefined && f3(cs.StartAUC) != f3(cs.EndAUC) && !(tol > 0 && math.Abs(cs.Change) <= tol)
+}
+
+// sharesSentence ends the sentence of chain cs (its opening head) with
+// the step of largest share and what its ring's AUC means.
+func sharesSentence(cs *ChainSummary, head string) string {
 	st := cs.Steps[cs.Largest]
 	word := "gain"
 	if cs.Change < 0 {
@@ -251,26 +269,67 @@ func chainSentence(cs *ChainSummary, who string) string {
 	}
 	s := fmt.Sprintf("%s; %s the ring %s minus %s (%s km²)",
 		head, comes, st.Outer, st.Inner, fmtArea(st.RingAreaKm2))
-	if cs.Slope.Defined {
-		// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
-		// reads as no change beside AUCs that do change.
-		tail += fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
-	}
+	tail += slopeClause(cs)
 	if !st.AUCRingDefined {
 		return s + "." + tail
 	}
 	return s + ", " + ringClause(st) + tail
 }
 
+// negligibleChainSentence ends the sentence of a chain whose AUC changes
+// by no more than the AUC tolerance tol from end to end: shares of a
+// negligible change are ratios of small numbers ("433% of the loss comes
+// from test points that enter with hull_100km" was written for a change
+// of -0.001), so none is given. Steps that move the score by more than tol
+// and cancel are named, the largest of them, so that a flat chain is not
+// read as a chain whose rings change nothing.
+func negligibleChainSentence(cs *ChainSummary, head string, tol float64) string {
+	s := fmt.Sprintf("%s: it changes by %s in all, within %s, so no share of the change is given (each step is in the table).",
+		head, signedVs(cs.Change, tol, -tol), toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: tol}))
+	big := -1
+	for i, st := range cs.Steps {
+		if math.Abs(st.Change) > tol && (big < 0 || math.Abs(st.Change) > math.Abs(cs.Steps[big].Change)) {
+			big = i
+		}
+	}
+	if big >= 0 {
+		st := cs.Steps[big]
+		what := fmt.Sprintf("the ring %s minus %s", st.Outer, st.Inner)
+		if st.Kind == StepTestPoints {
+			what = fmt.Sprintf("the test points that enter with %s", st.Outer)
+		}
+		s += fmt.Sprintf(" Its steps go both ways and cancel: the largest, %s, comes from %s.", signedVs(st.Change, tol, -tol), what)
+	}
+	return s + slopeClause(cs)
+}
+
+// slopeClause is the chain's slope of AUC against log2 of the area, a
+// description; "" when it is not defined.
+func slopeClause(cs *ChainSummary) string {
+	if !cs.Slope.Defined {
+		return ""
+	}
+	// signedVs: a slope of 0.0004 is "+0.0004", not "+0.000", which
+	// reads as no change beside AUCs that do change.
+	return fmt.Sprintf(" Along the chain AUC changes by %s per doubling of the area (a description of these %d nested extents, not an estimate).", signedVs(cs.Slope.PerDoubling, 0), cs.Slope.N)
+}
+
 // fewPointsClause warns that a chain's shares rest on few test points when
 // its fewest-pointed scored member has fewer than MinPairedPoints (our
 // cut-off for judging a paired difference): a large share there is one or
 // two points moving, which the chain describes but nothing tests.
-func fewPointsClause(fewest int) string {
+// shares says whether the sentence gave shares: when it did not, the
+// clause does not speak of them ("no share of the change is given" was
+// followed by "the shares describe them").
+func fewPointsClause(fewest int, shares bool) string {
 	if fewest < 0 || fewest >= MinPairedPoints {
 		return ""
 	}
-	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): the shares describe them and are not judged.", fewest, Plural(fewest), MinPairedPoints)
+	what := "the shares describe them and are not judged"
+	if !shares {
+		what = "they are described, not judged"
+	}
+	return fmt.Sprintf(" These AUCs rest on as few as %d test point%s, fewer than the %d we judge a difference on (our cut-off): %s.", fewest, Plural(fewest), MinPairedPoints, what)
 }
 
 // ringClause says what a ring's AUC means, following its value: whether

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // findSpread returns the spread of metric key for model, or nil.
@@ -387,6 +388,49 @@ func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float
 	b.WriteString(".")
 }
 
+// belowRandom lists the extents of sp (an AUC spread) on which the
+// model's AUC is below 0.5, the AUC of a random ranking, beyond noise: the
+// 95% interval from the test points' placements, AUC ± t SE (t the 0.975
+// quantile with n − 1 degrees of freedom, as for the paired differences),
+// lies wholly below 0.5. An extent with fewer than MinPairedPoints test
+// points is not read (our cut-off, as for a paired difference).
+func belowRandom(r *Results, sp *Spread) []string {
+	var out []string
+	for _, id := range sp.Extents {
+		sc := findScore(r, sp.Model, id)
+		if sc == nil || sc.TestPoints < MinPairedPoints {
+			continue
+		}
+		if sc.AUC+metrics.T975(sc.TestPoints-1)*sc.AUCSE < 0.5 {
+			out = append(out, id)
+		}
+	}
+	return out
+}
+
+// belowRandomClause says on which extents of sp the AUC is below 0.5
+// beyond noise (belowRandom), "" when on none; the caller puts it in
+// brackets. A model worse than random
+// on some extents only (a model that rates the far background above the
+// presences) read "ranged 0.273–0.831" with nothing to say that on the
+// largest extents it ranks the background above the test points.
+func belowRandomClause(r *Results, sp *Spread) string {
+	below := belowRandom(r, sp)
+	if len(below) == 0 {
+		return ""
+	}
+	on := fmt.Sprintf("%d of the %d extents", len(below), sp.N)
+	switch {
+	case len(below) == sp.N && sp.N > 1:
+		// "6 of the 6 extents" was written for a model below random on
+		// every extent.
+		on = allOfNoun(sp.N, "extent")
+	case len(below) <= 3:
+		on = joinList(below)
+	}
+	return fmt.Sprintf("below 0.5, the AUC of a random ranking, beyond noise on %s, its 95%% interval from the test points wholly below 0.5", on)
+}
+
 // manyExtentsHeadline writes the headline's sentences on the models'
 // AUC across the scored extents (areas lo to hi) and the partial ROC
 // ratio's verdicts; false when no model has an AUC (the headline ends
@@ -407,6 +451,9 @@ func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi
 			// Worse than a random ranking everywhere (point estimates):
 			// the range alone leaves the reader to notice it.
 			rng += " (below 0.5, the AUC of a random ranking, on every extent)"
+		}
+		if c := belowRandomClause(a.r, sp); c != "" && sp.Max >= 0.5 {
+			rng += " (" + c + ")"
 		}
 		if f3(sp.Min) == f3(sp.Max) {
 			// "ranged 1.000–1.000" names a range the numbers do not have.

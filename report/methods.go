@@ -548,6 +548,9 @@ func resultNumbers(r *Results) string {
 		if mv.BaseDefined {
 			onBase = fmt.Sprintf("%s on %s, %s", f3(mv.BaseValue), mv.Base, seText(findScore(r, m, mv.Base)))
 		}
+		if c := belowRandomClause(r, sp); c != "" {
+			onBase += "; " + c
+		}
 		t := fmt.Sprintf("AUC of %s %s (%s) and was %s", m, rangeOver(sp.Min, sp.Max, "over", sp.N), onBase, verdictPhrase(mv))
 		if sp.N == 1 {
 			se := ""
@@ -1000,7 +1003,9 @@ func reviewerNullText(s *Sensitivity) string {
 	type byNull struct {
 		name, kind              string
 		above, not, below, same []string
-		few                     []string
+		// noSkill: above the null, but at or below a random ranking.
+		noSkill []string
+		few     []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -1019,6 +1024,8 @@ func reviewerNullText(s *Sensitivity) string {
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, Plural(g.CommonPoints)))
 		case g.zero():
 			n.same = append(n.same, an.Model)
+		case aboveWithoutSkill(MetricAUC, g):
+			n.noSkill = append(n.noSkill, fmt.Sprintf("%s (difference %s, 95%% interval %s to %s; AUC %s)", an.Model, signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), f3(g.ModelValue)))
 		case an.BaseReading == ReadingAbove:
 			n.above = append(n.above, part)
 		case an.BaseReading == ReadingBelow:
@@ -1052,6 +1059,11 @@ func reviewerNullText(s *Sensitivity) string {
 		}
 		if len(n.above) > 0 {
 			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise. ", on, aucOf(n.above), n.name)
+		}
+		if len(n.noSkill) > 0 {
+			// Above a null that ranks worse than random: no skill shown.
+			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise but at or below 0.5, that of a random ranking, so on that extent this shows only that %s ranks the test records worse still, not skill. ",
+				on, aucOf(n.noSkill), n.name, n.name)
 		}
 		if len(n.same) > 0 {
 			// Every placement equal to the null's: a copy of it.

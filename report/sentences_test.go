@@ -693,16 +693,52 @@ func TestHijmansCitedWhenCited(t *testing.T) {
 // instead of "-500% of the gain comes from".
 func TestChainSentenceAgainstTheChange(t *testing.T) {
 	cs := ChainSummary{Chain: "c", Model: "m", Members: []string{"a", "b", "c", "d"}, MemberAreasKm2: []float64{10, 20, 40, 80},
-		StartAUC: 0.80, EndAUC: 0.81, Change: 0.01, SharesDefined: true, Largest: 0,
+		StartAUC: 0.70, EndAUC: 0.75, Change: 0.05, SharesDefined: true, Largest: 0,
 		Steps: []ChainStep{
-			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.80, AUCOuter: 0.75, AUCRing: 0.70, AUCRingDefined: true, Change: -0.05, Share: -5},
-			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.75, AUCOuter: 0.78, AUCRing: 0.81, AUCRingDefined: true, Change: 0.03, Share: 3},
-			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.78, AUCOuter: 0.81, AUCRing: 0.84, AUCRingDefined: true, Change: 0.03, Share: 3},
+			{Kind: StepRing, Inner: "a", Outer: "b", RingAreaKm2: 10, AUCInner: 0.70, AUCOuter: 0.45, AUCRing: 0.20, AUCRingDefined: true, Change: -0.25, Share: -5},
+			{Kind: StepRing, Inner: "b", Outer: "c", RingAreaKm2: 20, AUCInner: 0.45, AUCOuter: 0.60, AUCRing: 0.75, AUCRingDefined: true, Change: 0.15, Share: 3},
+			{Kind: StepRing, Inner: "c", Outer: "d", RingAreaKm2: 40, AUCInner: 0.60, AUCOuter: 0.75, AUCRing: 0.90, AUCRingDefined: true, Change: 0.15, Share: 3},
 		}}
-	got := chainSentence(&cs, "model")
+	got := chainSentence(&cs, "model", DefaultToleranceAUC)
 	if strings.Contains(got, "-500% of the gain comes") || !strings.Contains(got, "the largest step goes against the gain (-500% of it): the ring b minus a") {
 		t.Errorf("%s", got)
 	}
+}
+
+// TestChainSentenceNegligibleChange: a chain whose AUC changes by no
+// more than the AUC tolerance from end to end gives no share of that
+// change. The robust case of the known-answer studies (a model of
+// independent values, the same on every extent) wrote "goes from 0.808
+// to 0.807; 433% of the loss comes from test points that enter with
+// hull_100km" for a change of -0.001 (the numbers below, from that run).
+// Steps beyond the tolerance that cancel are named, the largest first.
+func TestChainSentenceNegligibleChange(t *testing.T) {
+	cs := ChainSummary{Chain: "hull", Model: "iid", Members: []string{"hull", "hull_100km"}, MemberAreasKm2: []float64{380000, 648000},
+		StartAUC: 0.8077, EndAUC: 0.8066, Change: -0.0011, SharesDefined: true, Largest: 0,
+		Steps: []ChainStep{
+			{Kind: StepTestPoints, Inner: "hull", Outer: "hull_100km", AUCInner: 0.8077, AUCOuter: 0.8027, Change: -0.0050, Share: 4.325},
+			{Kind: StepRing, Inner: "hull", Outer: "hull_100km", RingAreaKm2: 268000, AUCInner: 0.8027, AUCOuter: 0.8066, AUCRing: 0.8121, AUCRingDefined: true, Change: 0.0039, Share: -3.325},
+		}}
+	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC),
+		[]string{"goes from 0.808 (hull, 380,000 km²) to 0.807 (hull_100km, 648,000 km²): it changes by -0.001 in all, within our tolerance of ±0.02, so no share of the change is given"},
+		[]string{"433%", "of the loss", "cancel"})
+	// Steps of -0.15 and +0.16 that cancel to +0.01 (our numbers): the
+	// larger is named.
+	cs.StartAUC, cs.EndAUC, cs.Change = 0.70, 0.71, 0.01
+	cs.Steps[0].AUCInner, cs.Steps[0].AUCOuter, cs.Steps[0].Change = 0.70, 0.55, -0.15
+	cs.Steps[1].AUCInner, cs.Steps[1].AUCOuter, cs.Steps[1].Change = 0.55, 0.71, 0.16
+	cs.Steps[0].Share, cs.Steps[1].Share, cs.Largest = -15, 16, 1
+	checkWords(t, "chain", chainSentence(&cs, "model", DefaultToleranceAUC),
+		[]string{"it changes by +0.010 in all, within our tolerance of ±0.02", "Its steps go both ways and cancel: the largest, +0.160, comes from the ring hull_100km minus hull."},
+		[]string{"of the gain"})
+	// On few test points the closing clause does not speak of shares
+	// the sentence did not give (the robust study on 5 test points wrote
+	// "no share of the change is given ... the shares describe them").
+	checkWords(t, "few points", fewPointsClause(5, sharesGiven(&cs, DefaultToleranceAUC)),
+		[]string{"as few as 5 test points, fewer than the 10 we judge a difference on (our cut-off): they are described, not judged."}, []string{"shares"})
+	checkWords(t, "few points", fewPointsClause(5, sharesGiven(&cs, 0.005)), []string{"the shares describe them"}, nil)
+	// Past a tolerance set for the run (0.005), the shares are given.
+	checkWords(t, "chain", chainSentence(&cs, "model", 0.005), []string{"1600% of the gain comes from the ring hull_100km minus hull"}, []string{"within"})
 }
 
 // TestRankingSentenceReasons: a model comparison that cannot be made says
@@ -1826,7 +1862,7 @@ func TestOneExtentBesideUnscoredBase(t *testing.T) {
 func TestOneTestPointSingular(t *testing.T) {
 	s := &Sensitivity{TestPoints: []int{1, 1, 1}}
 	checkWords(t, "test point text", testPointText(s), []string{"1 test point on each"}, []string{"points"})
-	checkWords(t, "chain clause", fewPointsClause(1), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
+	checkWords(t, "chain clause", fewPointsClause(1, true), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
 	mv := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", Tolerance: 0.05, Largest: 0,
 		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: 0.004, High: 0.004, Position: positionTooFew}}}
 	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"on hull, not judged, too few common test points: 1, our cut-off 10"}, []string{"1 common test points", "interval"})
