@@ -20,6 +20,20 @@ import (
 	"areasweep/extent/vocab"
 )
 
+// needChromium returns the headless browser, skipping the test when
+// there is none, and failing it under CI, which must install it.
+func needChromium(t *testing.T) string {
+	t.Helper()
+	bin := findChromium()
+	if bin == "" {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
+		}
+		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
+	}
+	return bin
+}
+
 // findChromium returns the headless browser to use, or "".
 func findChromium() string {
 	for _, name := range []string{"/usr/bin/chromium", "chromium", "chromium-browser"} {
@@ -180,13 +194,7 @@ type layoutResult struct {
 // font installed (Debian fonts-liberation2, installed by setup.sh --test)
 // so that the browser measures the same text widths.
 func TestReportInChromium(t *testing.T) {
-	bin := findChromium()
-	if bin == "" {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
-		}
-		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
-	}
+	bin := needChromium(t)
 	if out, err := exec.Command("fc-match", "Liberation Sans").Output(); err != nil || !strings.Contains(string(out), "Liberation") {
 		t.Fatalf("font Liberation Sans not installed (fc-match says %q, %v): install Debian's fonts-liberation2 (scripts/setup.sh --test)", out, err)
 	}
@@ -357,13 +365,7 @@ func copyFile(t *testing.T, from, to string) {
 // cells gives readily, read 0.813 in the explorer and 0.812 in the
 // tables.
 func TestExplorerRoundsAsTheTables(t *testing.T) {
-	bin := findChromium()
-	if bin == "" {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
-		}
-		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
-	}
+	bin := needChromium(t)
 	r := loadSample(t)
 	model, ext := r.Models[0].Name, "base"
 	for i := range r.Scores {
@@ -405,13 +407,7 @@ func TestExplorerRoundsAsTheTables(t *testing.T) {
 // (seen in a run with --model __proto__=...). The sample's model "good"
 // renamed "__proto__" must read as itself in the menu and the sentence.
 func TestExplorerModelNamedLikeAProperty(t *testing.T) {
-	bin := findChromium()
-	if bin == "" {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
-		}
-		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
-	}
+	bin := needChromium(t)
 	raw, err := os.ReadFile(filepath.Join(sampleDir, "sample_results.json"))
 	if err != nil {
 		t.Fatal(err)

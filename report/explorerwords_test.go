@@ -2,7 +2,6 @@ package report
 
 import (
 	"net/url"
-	"os"
 	"path/filepath"
 	"regexp"
 	"testing"
@@ -16,13 +15,7 @@ import (
 // region_b50, the base extent (...)"), and counts one test point in the
 // singular ("1 test points" was written).
 func TestExplorerNamesTheReferenceExtent(t *testing.T) {
-	bin := findChromium()
-	if bin == "" {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("chromium not found: CI must install it (Debian package chromium)")
-		}
-		t.Skip("chromium not found: install Debian's chromium to run this test (a skip is not a pass)")
-	}
+	bin := needChromium(t)
 	r := loadSample(t)
 	for i := range r.Scores {
 		if r.Scores[i].Extent == vocab.BaseID {

@@ -136,14 +136,7 @@ func TestMapMarksMerged(t *testing.T) {
 // ran past the figure's right edge. Every text inside the canvas and none
 // overlapping another (checkTexts).
 func TestMapOnePanelKeyInside(t *testing.T) {
-	r := manyExtents(t, 10)
-	var keep []Extent
-	for _, e := range r.Extents {
-		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
-			keep = append(keep, e)
-		}
-	}
-	r.Extents = keep
+	r := baseAndWhole(t)
 	if n := len(mapGroups(r)); n != 1 {
 		t.Fatalf("%d panels, want 1", n)
 	}
@@ -483,18 +476,11 @@ func TestMapCoarseCellsNotCut(t *testing.T) {
 		{6, 5, false, "Outlines follow the edges of the coarse copy's cells"},
 		{240, 200, true, "Outlines follow the coarse copy's cells with their corners cut"},
 	} {
-		r := manyExtents(t, 10)
-		var keep []Extent
-		for _, e := range r.Extents {
-			if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
-				keep = append(keep, e)
-			}
-		}
-		r.Extents = keep
+		r := baseAndWhole(t)
 		// base: the middle third of the cells in each direction; the
 		// whole raster: every cell.
-		masks := make([][]bool, len(keep))
-		for k, e := range keep {
+		masks := make([][]bool, len(r.Extents))
+		for k, e := range r.Extents {
 			masks[k] = make([]bool, tc.w*tc.h)
 			for i := range masks[k] {
 				c, row := i%tc.w, i/tc.w
@@ -539,4 +525,18 @@ func TestMapCoarseCellsNotCut(t *testing.T) {
 			t.Errorf("%d x %d cells: base outline has diagonal segments %v, want %v", tc.w, tc.h, diagonal, tc.cut)
 		}
 	}
+}
+
+// baseAndWhole is manyExtents(t, 10) kept to its base extent and whole
+// raster: one map panel.
+func baseAndWhole(t *testing.T) *Results {
+	r := manyExtents(t, 10)
+	var keep []Extent
+	for _, e := range r.Extents {
+		if e.Kind == vocab.KindBase || e.Kind == vocab.KindWholeRaster {
+			keep = append(keep, e)
+		}
+	}
+	r.Extents = keep
+	return r
 }
