@@ -73,3 +73,28 @@ func TestConvertedName(t *testing.T) {
 		}
 	}
 }
+
+// TestCRSAdviceMissingFile: an --occurrences-crs that names a .prj or
+// .wkt file that is not there was answered with the advice for a CRS
+// text ("write an authority code ..."), as if the name were meant as
+// one; it now says no such file exists and where a relative path is
+// read from. An existing file, a bare number and other text keep their
+// advice.
+func TestCRSAdviceMissingFile(t *testing.T) {
+	dir := t.TempDir()
+	prj := filepath.Join(dir, "here.prj")
+	if err := os.WriteFile(prj, []byte("garbage"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ crs, want string }{
+		{"nothere.prj", "there is no file nothere.prj (a relative path is read from the study file's or table's folder"},
+		{filepath.Join(dir, "gone.WKT"), "there is no file " + filepath.Join(dir, "gone.WKT")},
+		{prj, prj + " is a file, read for the CRS"},
+		{"3035", "EPSG:3035"},
+		{"utm33", "write an authority code such as EPSG:3035, a PROJ string"},
+	} {
+		if got := crsAdvice(c.crs); !strings.Contains(got, c.want) {
+			t.Errorf("%s: advice %q, want it to contain %q", c.crs, got, c.want)
+		}
+	}
+}

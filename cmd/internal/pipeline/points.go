@@ -322,6 +322,9 @@ func crsAdvice(crs string) string {
 	if _, err := strconv.ParseUint(strings.TrimSpace(crs), 10, 32); err == nil {
 		return fmt.Sprintf("an EPSG code is written with its authority: EPSG:%s", strings.TrimSpace(crs))
 	}
+	if ext := strings.ToLower(filepath.Ext(crs)); ext == ".prj" || ext == ".wkt" {
+		return fmt.Sprintf("it reads as the name of a CRS file, but there is no file %s (a relative path is read from the study file's or table's folder, else from the working folder): check the path, or write an authority code such as EPSG:3035", crs)
+	}
 	return "write an authority code such as EPSG:3035, a PROJ string such as +proj=utm +zone=33 +datum=WGS84, or the CRS's WKT"
 }
 
