@@ -156,17 +156,7 @@ func TestBatchShardZero(t *testing.T) {
 		{"0", false, "--shard 0: shards are counted from 1"},
 		{"1", true, ""},
 	} {
-		ran := false
-		cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
-		cmd.SetArgs([]string{"t.csv", "--out", "o", "--only", "a", "--shards", "2", "--shard", c.shard})
-		cmd.SilenceErrors, cmd.SilenceUsage = true, true
-		err := cmd.Execute()
-		if ran != c.wantRun || (c.want == "") != (err == nil) || (err != nil && !strings.Contains(err.Error(), c.want)) {
-			t.Errorf("--shard %s: ran %v, error %v; want ran %v and %q", c.shard, ran, err, c.wantRun, c.want)
-		}
-		if err != nil && !fault.IsBadInput(err) {
-			t.Errorf("--shard %s: %v is not a bad input (exit 2)", c.shard, err)
-		}
+		checkBatchFlags(t, []string{"--only", "a", "--shards", "2", "--shard", c.shard}, c.wantRun, c.want)
 	}
 }
 
@@ -236,16 +226,25 @@ func TestBatchSlurmResourcesNeedSlurm(t *testing.T) {
 		{[]string{"--cpus-per-task", "4", "--slurm"}, true, ""},
 		{[]string{"--jobs", "2"}, true, ""},
 	} {
-		ran := false
-		cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
-		cmd.SetArgs(append([]string{"t.csv", "--out", "o"}, c.args...))
-		cmd.SilenceErrors, cmd.SilenceUsage = true, true
-		err := cmd.Execute()
-		if ran != c.wantRun || (c.want == "") != (err == nil) || (err != nil && !strings.Contains(err.Error(), c.want)) {
-			t.Errorf("%v: ran %v, error %v; want ran %v and %q", c.args, ran, err, c.wantRun, c.want)
-		}
-		if err != nil && !fault.IsBadInput(err) {
-			t.Errorf("%v: %v is not a bad input (exit 2)", c.args, err)
-		}
+		checkBatchFlags(t, c.args, c.wantRun, c.want)
+	}
+}
+
+// checkBatchFlags runs the batch command on "t.csv --out o" and args
+// (without running any study) and fails t unless it ran the batch exactly
+// when wantRun, and refused with an error holding want, a bad input
+// (exit 2), exactly when want is not "".
+func checkBatchFlags(t *testing.T, args []string, wantRun bool, want string) {
+	t.Helper()
+	ran := false
+	cmd := newBatchCmd(&IO{Out: &strings.Builder{}, ErrOut: &strings.Builder{}}, func(*BatchOptions) error { ran = true; return nil })
+	cmd.SetArgs(append([]string{"t.csv", "--out", "o"}, args...))
+	cmd.SilenceErrors, cmd.SilenceUsage = true, true
+	err := cmd.Execute()
+	if ran != wantRun || (want == "") != (err == nil) || (err != nil && !strings.Contains(err.Error(), want)) {
+		t.Errorf("%v: ran %v, error %v; want ran %v and %q", args, ran, err, wantRun, want)
+	}
+	if err != nil && !fault.IsBadInput(err) {
+		t.Errorf("%v: %v is not a bad input (exit 2)", args, err)
 	}
 }
