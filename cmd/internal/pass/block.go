@@ -156,6 +156,9 @@ func (bs *bands) done(by int, bd *band) {
 
 // workerState is one worker's scratch for scoring blocks.
 type workerState struct {
+	// values remembers the values the pass's value set holds
+	// (Stats.Values).
+	values  metrics.ValueCache
 	buf     []float64
 	areas   []float64
 	weights []int64
@@ -600,7 +603,7 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
-		locateSegments(layout, segs, bins, vals, weights, rowW, st, validRuns, len(ws.validRuns), b.x0)
+		locateSegments(layout, segs, bins, vals, weights, rowW, st, &ws.values, validRuns, len(ws.validRuns), b.x0)
 		ws.addSegments(accs, segs, bins, vals, weights)
 	}
 	if validRuns != nil {
@@ -636,10 +639,11 @@ func (pv *Preview) copyRow(row, x0 int, vals []float64) {
 // locateSegments locates the values of a block row's segments in the
 // layout's bins (bins), adds their cells to the statistics st (minimum,
 // maximum, the area at the minimum, the area; rowW the row's one cell
-// weight, or negative when its cells differ) and, with validRuns, appends
+// weight, or negative when its cells differ) and their values to its
+// value set (vc: the worker's cache of it) and, with validRuns, appends
 // the runs of valid cells to it (its runs of this row begin at from; x0:
 // the grid column of the block's first cell).
-func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, validRuns *[]int32, from, x0 int) {
+func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, vc *metrics.ValueCache, validRuns *[]int32, from, x0 int) {
 	// The statistics in locals: st is written back once per row.
 	mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 	for j := 0; j < len(segs); {
@@ -656,7 +660,7 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 		if n == 0 {
 			continue
 		}
-		st.Values.AddRow(sv, sb)
+		st.Values.AddRow(sv, sb, vc)
 		if validRuns != nil {
 			*validRuns = appendValidRuns(*validRuns, from, sb, int32(x0+int(s.x0)))
 		}
