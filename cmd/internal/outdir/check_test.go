@@ -46,7 +46,7 @@ func TestCheckWritesNothing(t *testing.T) {
 	} {
 		denied = tc.denied
 		before := leftovers(dir)
-		err := Check(tc.out, false, nil, false)
+		err := Check(tc.out, false, nil, nil)
 		switch {
 		case tc.want == "" && err != nil:
 			t.Errorf("%s: %v", tc.name, err)

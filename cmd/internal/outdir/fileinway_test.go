@@ -112,10 +112,10 @@ func TestBatchFolderRefused(t *testing.T) {
 	opens := map[string]func() (*Dir, error){
 		"run":          func() (*Dir, error) { return Open(out, false, nil) },
 		"run --force":  func() (*Dir, error) { return Open(out, true, nil) },
-		"shard":        func() (*Dir, error) { return OpenShard(out, true, nil) },
+		"shard":        func() (*Dir, error) { return OpenShard(out, true, nil, nil) },
 		"demo --force": func() (*Dir, error) { return OpenDemo(out, true, []string{"study.yaml"}) },
 		"merge --force": func() (*Dir, error) {
-			return nil, Check(out, true, nil, false)
+			return nil, Check(out, true, nil, nil)
 		},
 	}
 	for name, open := range opens {

@@ -138,19 +138,30 @@ func CheckUmask() error {
 // Open checks --out against the inputs, locks it, removes staging
 // folders of dead runs and makes this run's staging folder.
 func Open(out string, force bool, inputs []string) (*Dir, error) {
-	return open(out, force, inputs, false, nil, false)
+	return open(out, force, inputs, false, nil, nil)
 }
 
 // OpenShard is Open for a shard's run, which replaces only its own
-// partial file and log (Dir.Shard), whatever else --out holds.
-func OpenShard(out string, force bool, inputs []string) (*Dir, error) {
-	return open(out, force, inputs, false, nil, true)
+// partial file and log (Dir.Shard), whatever else --out holds; own are
+// their names, so that a folder standing where one of them goes is
+// refused before the work, not found when the results are moved in.
+func OpenShard(out string, force bool, inputs, own []string) (*Dir, error) {
+	return open(out, force, inputs, false, nil, shardNames(own))
+}
+
+// shardNames is own as a shard's names: never nil, so that check knows
+// the run as a shard's even when it names no file.
+func shardNames(own []string) []string {
+	if own == nil {
+		return []string{}
+	}
+	return own
 }
 
 // OpenDemo is Open for the demo, whose inputs/ folder is an output entry
 // too: --force replaces it, so it may hold only the demo's own files.
 func OpenDemo(out string, force bool, inputFiles []string) (*Dir, error) {
-	return open(out, force, nil, true, inputFiles, false)
+	return open(out, force, nil, true, inputFiles, nil)
 }
 
 // foreign lists, as paths under --out, what the folders among names hold
@@ -265,7 +276,7 @@ func foreignError(out string, found []string) error {
 		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
 }
 
-func open(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, error) {
+func open(out string, force bool, inputs []string, demo bool, demoInputs, shard []string) (*Dir, error) {
 	d, exists, err := check(out, force, inputs, demo, demoInputs, shard)
 	if err != nil {
 		return nil, err
@@ -273,7 +284,8 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 	return d.open(out, exists)
 }
 
-// Check makes the refusals of Open (OpenShard when shard) that need no
+// Check makes the refusals of Open (OpenShard when shard is not nil: the
+// shard's own file names) that need no
 // write: those of check, and a folder areasweep could not write in (the
 // one --out's lock file goes in, or the nearest one above it that exists
 // when it is missing, and --out itself when it exists), which the system
@@ -281,7 +293,7 @@ func open(out string, force bool, inputs []string, demo bool, demoInputs []strin
 // its long work (reading the points, hashing the inputs), so that a
 // forgotten --force or a folder of another user is refused at once; Open
 // makes them all again when it writes.
-func Check(out string, force bool, inputs []string, shard bool) error {
+func Check(out string, force bool, inputs, shard []string) error {
 	d, exists, err := check(out, force, inputs, false, nil, shard)
 	if err != nil {
 		return err
@@ -309,8 +321,10 @@ func Check(out string, force bool, inputs []string, shard bool) error {
 var access = syscall.Access
 
 // check makes Open's refusals that need no write and returns the Dir they
-// describe and whether --out exists.
-func check(out string, force bool, inputs []string, demo bool, demoInputs []string, shard bool) (*Dir, bool, error) {
+// describe and whether --out exists. shardFiles, when not nil, are the
+// names a shard's run writes (its --out may hold anything else).
+func check(out string, force bool, inputs []string, demo bool, demoInputs, shardFiles []string) (*Dir, bool, error) {
+	shard := shardFiles != nil
 	if out == "" {
 		return nil, false, fault.BadInput(errors.New("--out is empty; name an output directory"))
 	}
@@ -369,7 +383,11 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs []stri
 		if found := d.foreign([]string{"figures", "inputs"}, ""); len(found) > 0 && !shard {
 			return nil, false, fault.BadInput(foreignError(out, found))
 		}
-		if f := d.folderAtFile(outputNames); f != "" && !shard {
+		own := outputNames
+		if shard {
+			own = shardFiles
+		}
+		if f := d.folderAtFile(own); f != "" {
 			return nil, false, fault.BadInput(folderAtFileError(out, f))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
@@ -1094,8 +1112,8 @@ func (d *Dir) moveEntries() error {
 	}
 	// A file of the user's that reached a folder replaced as a whole
 	// during the run, or a folder of the user's where a file goes (a
-	// shard's own files are checked only here): nothing is replaced, as
-	// for a clash.
+	// shard's own files were checked at the start too): nothing is
+	// replaced, as for a clash.
 	var inWay error
 	if found := d.foreign(replace, d.Stage); len(found) > 0 {
 		inWay = foreignError(d.Out, found)

@@ -166,7 +166,7 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 	t.Run("a shard leaves figures/ alone", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
 		mine(t, filepath.Join(out, "figures", "my_figure.png"))
-		d, err := OpenShard(out, true, nil)
+		d, err := OpenShard(out, true, nil, []string{"shard-1-of-2.aspf", "shard-1-of-2.log"})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -176,13 +176,33 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 		}
 		kept(t, filepath.Join(out, "figures", "my_figure.png"))
 	})
-	t.Run("a shard keeps a folder named as its partial file", func(t *testing.T) {
+	t.Run("a shard refuses a folder named as its partial file at once", func(t *testing.T) {
+		for _, name := range []string{"shard-1-of-2.aspf", "shard-1-of-2.log"} {
+			out := filepath.Join(t.TempDir(), "res")
+			mine(t, filepath.Join(out, name, "keep.txt"))
+			own := []string{"shard-1-of-2.aspf", "shard-1-of-2.log"}
+			for _, try := range []func() error{
+				func() error { return Check(out, true, nil, own) },
+				func() error { _, err := OpenShard(out, true, nil, own); return err },
+			} {
+				err := try()
+				if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "holds the folder "+filepath.Join(out, name)) {
+					t.Fatalf("%s: refusal = %v, want bad input naming the folder", name, err)
+				}
+			}
+			kept(t, filepath.Join(out, name, "keep.txt"))
+			if l := leftovers(filepath.Dir(out)); len(l) > 0 {
+				t.Errorf("left behind: %v", l)
+			}
+		}
+	})
+	t.Run("a shard keeps a folder named as its partial file made during the run", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
-		mine(t, filepath.Join(out, "shard-1-of-2.aspf", "keep.txt"))
-		d, err := OpenShard(out, true, nil)
+		d, err := OpenShard(out, true, nil, []string{"shard-1-of-2.aspf", "shard-1-of-2.log"})
 		if err != nil {
 			t.Fatal(err)
 		}
+		mine(t, filepath.Join(out, "shard-1-of-2.aspf", "keep.txt"))
 		os.WriteFile(filepath.Join(d.Stage, "shard-1-of-2.aspf"), []byte("x"), 0o644)
 		err = d.Finish()
 		if err == nil || fault.IsBadInput(err) || !strings.Contains(err.Error(), "holds the folder "+filepath.Join(out, "shard-1-of-2.aspf")) {

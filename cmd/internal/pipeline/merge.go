@@ -74,7 +74,7 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 	}
 	// The refusals of --out that need no write, before the partial files
 	// are read (Prepare makes them again with the inputs they record).
-	if err := outdir.Check(mo.Out, mo.Force, files, false); err != nil {
+	if err := outdir.Check(mo.Out, mo.Force, files, nil); err != nil {
 		return nil, err
 	}
 	merged, first, err := readShards(files, ToolID(mo.Version, mo.Build))

@@ -19,9 +19,9 @@ type Options struct {
 
 	// ExtentsOnly stops after building and exporting the family.
 	ExtentsOnly bool
-	// Shard marks a shard's run (set by RunShard): its output folder is
-	// opened with outdir.OpenShard.
-	Shard bool
+	// Shard is {I, N} for shard I of N's run (set by RunShard), zero
+	// otherwise: its output folder is opened with outdir.OpenShard.
+	Shard [2]int
 
 	// InputsDir, when set, is a directory of generated inputs (the demo's)
 	// that is moved into Out/inputs with the results; input paths are

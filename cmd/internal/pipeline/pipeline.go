@@ -76,7 +76,7 @@ func (s *Study) checkOut() error {
 			sidecars = append(sidecars, sidecarFiles(in.path, in.kind)...)
 		}
 	}
-	return outdir.Check(s.o.Out, s.o.Force, append(s.outInputs(), sidecars...), s.o.Shard)
+	return outdir.Check(s.o.Out, s.o.Force, append(s.outInputs(), sidecars...), s.shardFiles())
 }
 
 // outInputs are the files --out may not hold or be: the inputs, the study
@@ -169,11 +169,12 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	}
 	if s.dir == nil {
 		var err error
-		open := outdir.Open
-		if o.Shard {
-			open = outdir.OpenShard
+		if o.Shard[1] > 0 {
+			s.dir, err = outdir.OpenShard(o.Out, o.Force, s.outInputs(), s.shardFiles())
+		} else {
+			s.dir, err = outdir.Open(o.Out, o.Force, s.outInputs())
 		}
-		if s.dir, err = open(o.Out, o.Force, s.outInputs()); err != nil {
+		if err != nil {
 			s.Close() // the first model's raster
 			return nil, err
 		}
@@ -214,7 +215,7 @@ func checkSetup() error {
 // shard) whose temporary folder the PDF figures cannot use, before any
 // work: it failed at the end, after the scoring (exit 1 all the same).
 func (s *Study) checkTempDir() error {
-	if s.o.ExtentsOnly || s.o.Shard {
+	if s.o.ExtentsOnly || s.o.Shard[1] > 0 {
 		return nil
 	}
 	if err := report.CheckTempDir(); err != nil {

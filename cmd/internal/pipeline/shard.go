@@ -28,6 +28,16 @@ func ShardFileName(i, n int) string { return fmt.Sprintf("shard-%d-of-%d.aspf", 
 // partial file.
 func ShardLogName(i, n int) string { return fmt.Sprintf("shard-%d-of-%d.log", i, n) }
 
+// shardFiles are the names a shard's run writes into its --out (its
+// partial file and log), nil for a run that is not a shard's.
+func (s *Study) shardFiles() []string {
+	i, n := s.o.Shard[0], s.o.Shard[1]
+	if n == 0 {
+		return nil
+	}
+	return []string{ShardFileName(i, n), ShardLogName(i, n)}
+}
+
 // recordedRun is what a shard records of its Options so that a merge can
 // prepare the very same run: every input path and every setting that
 // changes an output. The paths are as given (results.json records them
@@ -177,7 +187,7 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 			return fault.BadInput(fmt.Errorf("--shard: %w", err))
 		}
 	}
-	o.Shard = true
+	o.Shard = [2]int{i, n}
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
 		return err
