@@ -4,10 +4,13 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"areasweep/cmd/internal/fault"
+	"areasweep/cmd/internal/settings"
 )
 
 func newExtentsCmd(streams *IO, runF func(*RunOptions) error) *cobra.Command {
@@ -33,6 +36,9 @@ are checked but not used, and its help lists only the flags that shape the famil
 			if err := keepScoredResults(&opts); err != nil {
 				return err
 			}
+			if given := scoringFlagsGiven(c.Flags()); len(given) > 0 && !opts.Quiet {
+				fmt.Fprintln(streams.ErrOut, scoringFlagsNote(given))
+			}
 			if runF != nil {
 				return runF(&opts)
 			}
@@ -56,4 +62,25 @@ func keepScoredResults(o *RunOptions) error {
 		return fault.BadInput(fmt.Errorf("--out %s holds a scored run's results (%s); extents writes only the family, and with --force it would remove them with areasweep's other files there: choose another --out, e.g. %s", o.Out, res, filepath.Clean(o.Out)+"-extents"))
 	}
 	return nil
+}
+
+// scoringFlagsGiven lists, as --name in the table's order, the scoring
+// settings given on extents' command line: accepted, so that a run's
+// command line works, but they change nothing extents writes. Keys of a
+// study file are not listed: the file is written for run.
+func scoringFlagsGiven(f *pflag.FlagSet) []string {
+	var given []string
+	for _, s := range settings.Table {
+		if s.Scoring && f.Changed(s.Name) {
+			given = append(given, "--"+s.Name)
+		}
+	}
+	return given
+}
+
+// scoringFlagsNote tells a user who typed scoring flags for extents that
+// they were checked and not used, so that none expects them to change the
+// family.
+func scoringFlagsNote(given []string) string {
+	return fmt.Sprintf("areasweep extents: scoring flags are checked but not used, since extents scores nothing (they take effect in 'areasweep run'): %s", strings.Join(given, ", "))
 }

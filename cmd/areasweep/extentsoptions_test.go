@@ -2,6 +2,7 @@ package main
 
 import (
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -29,5 +30,38 @@ func TestBufferBeyondEarth(t *testing.T) {
 	out := filepath.Join(f.outs, "edge")
 	if _, se, code := runBin(t, append(ext("--region-buffers=20004", "--hull-buffers", "0,20004"), "--out", out, "--quiet")...); code != 0 {
 		t.Fatalf("20004 km: exit %d: %s", code, se)
+	}
+}
+
+// TestExtentsNamesScoringFlags: scoring flags typed for extents (accepted
+// so that a run's command line works) get one line on standard error
+// naming them as checked but not used; family flags, a study file's
+// scoring keys and --quiet get none. Before, they were taken silently, so
+// a user could expect --iterations or --e to change what extents wrote.
+func TestExtentsNamesScoringFlags(t *testing.T) {
+	f := &badFixture{smallStudy: newSmallStudy(t), outs: t.TempDir()}
+	base := []string{"extents", "--model", "m=" + f.model, "--occurrences", f.occ, "--region", f.region, "--region-buffers=-40,60"}
+	study := f.file("s.yaml", "iterations: 50\n")
+	const note = "scoring flags are checked but not used"
+	for _, c := range []struct {
+		name  string
+		extra []string
+		want  string // "" for no note
+	}{
+		{"two scoring flags", []string{"--iterations", "50", "--e", "0.1"}, "(they take effect in 'areasweep run'): --e, --iterations"},
+		{"family flags only", []string{"--point-buffers", "40"}, ""},
+		{"scoring key of a study file", []string{"--study", study}, ""},
+		{"quiet", []string{"--iterations", "50", "--quiet"}, ""},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			out := filepath.Join(f.outs, strings.ReplaceAll(c.name, " ", "_"))
+			_, se, code := runBin(t, append(append(append([]string{}, base...), c.extra...), "--out", out)...)
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, se)
+			}
+			if got := strings.Count(se, note); c.want == "" && got != 0 || c.want != "" && (got != 1 || !strings.Contains(se, c.want)) {
+				t.Errorf("standard error %q: want note %q (empty: none)", se, c.want)
+			}
+		})
 	}
 }
