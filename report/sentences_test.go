@@ -2074,3 +2074,85 @@ func TestRankingOrderNotCompared(t *testing.T) {
 		}
 	}
 }
+
+// TestAboveNullSkillNotShown: a model read above the null beyond noise is
+// qualified by its own AUC against 0.5, read with its own 95% interval
+// from the placements on the common test points: at or below 0.5 (point
+// estimate), not shown above 0.5 (the interval reaches it), or above it
+// (no qualifier). Before, only a point AUC at or below 0.5 was qualified,
+// and a model of AUC 0.52 whose interval held 0.5 read "above" with no
+// word on skill. The sample's 21 test points on base get the placements
+// below; intervals from SciPy (scipy.stats.t.ppf(0.975, 20) = 2.0860,
+// numpy's sample SD / sqrt(21)): 0.374 to 0.666, 0.515 to 0.525.
+func TestAboveNullSkillNotShown(t *testing.T) {
+	spread := func(mid, half float64) []float64 {
+		v := []float64{mid}
+		for range 10 {
+			v = append(v, mid-half, mid+half)
+		}
+		return v
+	}
+	cases := []struct {
+		name       string
+		placements []float64
+		vs         string
+		want       []string
+		notWant    []string
+	}{
+		{"AUC 0.52, interval holds 0.5", spread(0.52, 0.32), VsRandomNotShown,
+			[]string{"its own AUC, 0.520, is not above 0.5, that of a random ranking, beyond noise (its 95% interval 0.374 to 0.666 reaches it), so being above the null is no sign of skill",
+				"(model not shown above 0.5, random: no sign of skill)"},
+			[]string{"at or below 0.5"}},
+		{"AUC 0.52, interval above 0.5", spread(0.52, 0.01), VsRandomAbove, nil,
+			[]string{"no sign of skill", "not shown"}},
+		{"AUC 0.45", spread(0.45, 0.32), VsRandomAtOrBelow,
+			[]string{"its own AUC, 0.450, is at or below 0.5, that of a random ranking", "(model at or below 0.5, random: no sign of skill)"},
+			[]string{"not shown", "beyond noise (its 95%"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			mean := 0.0
+			for _, v := range c.placements {
+				mean += v / float64(len(c.placements))
+			}
+			for i := range r.Scores {
+				if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+					if len(sc.Placements) != len(c.placements) {
+						t.Fatalf("the sample holds %d test points on base, the case %d", len(sc.Placements), len(c.placements))
+					}
+					sc.Placements, sc.AUC = c.placements, mean
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) {
+				p.A, p.B, p.Diff, p.Low, p.High = mean, mean-0.12, 0.12, 0.05, 0.19
+			})
+			s := analyzed(t, r)
+			var an *AboveNull
+			for i := range s.AboveNull {
+				if s.AboveNull[i].Metric == "auc" && s.AboveNull[i].Model == "good" {
+					an = &s.AboveNull[i]
+				}
+			}
+			if an == nil {
+				t.Fatal("no AUC comparison of good with the null")
+			}
+			g := an.gap("base")
+			if g.Reading != ReadingAbove || g.ModelVsRandom != c.vs {
+				t.Fatalf("reading %s, model against random %q; want above and %q", g.Reading, g.ModelVsRandom, c.vs)
+			}
+			all := strings.Join([]string{an.Sentence, s.Headline, readingWords(MetricAUC, g)}, " | ")
+			checkWords(t, "sentence, headline and table", all, c.want, c.notWant)
+			reply := reviewerNullText(s)
+			switch c.vs {
+			case VsRandomNotShown:
+				checkWords(t, "reply", reply, []string{"AUC 0.520, 95% interval 0.374 to 0.666) is above that of distance_null beyond noise but not above 0.5, that of a random ranking, beyond noise"}, []string{"worse still"})
+			case VsRandomAtOrBelow:
+				checkWords(t, "reply", reply, []string{"at or below 0.5, that of a random ranking, so on that extent this shows only"}, []string{"not above 0.5"})
+			default:
+				checkWords(t, "reply", reply, []string{"is above that of distance_null beyond noise."}, []string{"random ranking"})
+			}
+		})
+	}
+}
