@@ -198,6 +198,16 @@ func TestSummaryAboveWithoutSkill(t *testing.T) {
 			t.Errorf("study %s: the page reads %q, want %q", r.Study, got, want)
 		}
 	}
+	// summary.csv tells them apart too: "above" alone counted them with
+	// the pairs that show skill.
+	recs := csvRecords(t, s.WriteCSV)
+	col := slices.Index(recs[0], "null_reading")
+	for _, rec := range recs[1:] {
+		want := map[string]string{"alpha": ReadingAbove, "rev": "above_no_skill", "weak": "above_skill_not_shown"}[rec[0]]
+		if rec[col] != want {
+			t.Errorf("study %s: summary.csv null_reading %q, want %q", rec[0], rec[col], want)
+		}
+	}
 }
 
 // TestSummarizeCounts checks the counts against the verdicts worked out
