@@ -528,16 +528,18 @@ func ies(n int) string {
 func (s *BatchSummary) MethodsText() string {
 	var b strings.Builder
 	b.WriteString("# Summary across studies\n\nReady to paste; every number comes from the studies' own results. Edit freely.\n")
+	// Every text goes through mdText: study ids, model names and the
+	// failed studies' errors (with their paths) are the user's.
 	for _, sec := range s.methodsSections() {
-		fmt.Fprintf(&b, "\n## %s\n", sec.Heading)
+		fmt.Fprintf(&b, "\n## %s\n", mdText(sec.Heading))
 		for _, p := range sec.Paragraphs {
-			b.WriteString("\n" + p + "\n")
+			b.WriteString("\n" + mdText(p) + "\n")
 		}
 		if len(sec.List) > 0 {
 			b.WriteString("\n")
 		}
 		for _, item := range sec.List {
-			b.WriteString("- " + item + "\n")
+			b.WriteString("- " + mdText(item) + "\n")
 		}
 	}
 	return strings.TrimRight(b.String(), "\n") + "\n"

@@ -249,7 +249,7 @@ func TestSummarizeCounts(t *testing.T) {
 	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition,
 		"Counted by study and model (6 pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
 		"above the null beyond noise for 1 of 3 study-model pairs (against the distance-only null), within noise of it for 1 and below it for 1.",
-		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
+		"- delta: pipeline: open \\<models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
 		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points): 2 negative",
 		"and 4 positive, their magnitudes of median 0.045 over 6 study-model pairs from 5 studies.",
 		// zeta's count is unknown (no score record): 12, 40 (eps: the

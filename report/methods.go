@@ -40,31 +40,33 @@ func methodsText(r *Results) string {
 	if sw == "" {
 		sw = "areasweep"
 	}
-	fmt.Fprintf(&b, "# Methods text (%s)\n\n", sw)
-	b.WriteString("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.\n\n")
+	// Every text goes through mdText: the sentences hold the user's
+	// paths, names and ids, and are the same as those of report.html.
+	fmt.Fprintf(&b, "# %s\n\n", mdText("Methods text ("+sw+")"))
+	b.WriteString(mdText("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.") + "\n\n")
 	b.WriteString("## Methods\n\n")
 
-	methodsFamily(&b, r, sw)
-	methodsRecords(&b, r)
-	methodsScores(&b, r)
-	methodsInference(&b, r)
-
+	var m strings.Builder
+	methodsFamily(&m, r, sw)
+	methodsRecords(&m, r)
+	methodsScores(&m, r)
+	methodsInference(&m, r)
 	// Results in numbers.
-	b.WriteString("Results: ")
-	b.WriteString(resultNumbers(r))
-	b.WriteString("\n\n")
+	m.WriteString("Results: ")
+	m.WriteString(resultNumbers(r))
+	b.WriteString(mdText(m.String()) + "\n\n")
 
 	b.WriteString("## Reply to a reviewer\n\n")
-	b.WriteString(reviewerText(r))
-	b.WriteString("\n\n")
+	reply := reviewerText(r)
+	b.WriteString(mdText(reply) + "\n\n")
 	b.WriteString("## References\n\n")
 	refs := slices.Clone(references)
-	if strings.Contains(b.String(), "Hijmans 2012") {
+	if strings.Contains(m.String()+reply, "Hijmans 2012") {
 		refs = append(refs, hijmans2012)
 		slices.Sort(refs)
 	}
 	for _, ref := range refs {
-		b.WriteString("- " + ref + "\n")
+		b.WriteString("- " + mdText(ref) + "\n")
 	}
 	return b.String()
 }
