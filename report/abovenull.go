@@ -132,6 +132,7 @@ func aboveWithoutSkill(k MetricKind, g *NullGap) bool {
 // below it, or not above it beyond noise (with its interval).
 func noSkillClause(k MetricKind, label string, g *NullGap) string {
 	lvl, _ := randomLevel(k)
+	label = strings.TrimPrefix(label, "the ") // "its own the partial ROC ratio" was written
 	if g.vsRandom(k) == VsRandomNotShown {
 		return fmt.Sprintf("its own %s, %s, is not above %s, that of a random ranking, beyond noise (its 95%% interval %s to %s reaches it), so being above the null is no sign of skill",
 			label, f3(g.ModelValue), fmtG(lvl), f3(g.ModelLow), f3(g.ModelHigh))
@@ -149,6 +150,7 @@ func pointOnlyClause(k MetricKind, label string, g *NullGap) string {
 		return ""
 	}
 	lvl, _ := randomLevel(k)
+	label = strings.TrimPrefix(label, "the ")
 	why := fmt.Sprintf("fewer than %d common test points (our cut-off)", MinPairedPoints)
 	switch {
 	case k == MetricPartialROC:
@@ -520,11 +522,18 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // their reading on the base extent (above, within noise, below, not
 // told), each named under Analysis.
 func aboveNullCounts(gaps []baseGap) string {
-	var above, within, below, untold int
+	var above, within, below, untold, noSkill int
+	atOrBelow, notShown := false, false
 	for _, bg := range gaps {
 		switch bg.an.BaseReading {
 		case ReadingAbove:
 			above++
+			if aboveWithoutSkill(MetricAUC, bg.g) {
+				// Counted above, but no sign of skill: say how many.
+				noSkill++
+				atOrBelow = atOrBelow || bg.g.vsRandom(MetricAUC) == VsRandomAtOrBelow
+				notShown = notShown || bg.g.vsRandom(MetricAUC) == VsRandomNotShown
+			}
 		case ReadingBelow:
 			below++
 		case ReadingTooFew, ReadingTooFewResamples:
@@ -533,8 +542,12 @@ func aboveNullCounts(gaps []baseGap) string {
 			within++
 		}
 	}
-	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d, within noise in %d and below in %d",
-		gaps[0].an.BaseExtent, len(gaps), above, within, below)
+	skill := ""
+	if noSkill > 0 {
+		skill = fmt.Sprintf(" (in %d of them the model itself is %s: no sign of skill)", noSkill, noSkillWords(0.5, atOrBelow, notShown))
+	}
+	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d and below in %d",
+		gaps[0].an.BaseExtent, len(gaps), above, skill, within, below)
 	if untold > 0 {
 		out += fmt.Sprintf(", not told in %d (too few common test points or resamples, our cut-offs)", untold)
 	}

@@ -2156,3 +2156,61 @@ func TestAboveNullSkillNotShown(t *testing.T) {
 		})
 	}
 }
+
+// TestNoSkillPartialROCAndCounts: the model's own partial ROC ratio is
+// read against 1 by its published bootstrap's interval when that was drawn
+// on the common test points and is readable, else by the point estimate,
+// which the sentence then says; the qualifier names the ratio without
+// "its own the" (written before); and the headline's counts, used past 6
+// pairs, say how many of the pairs above show no skill. Intervals and
+// counts are hand-made.
+func TestNoSkillPartialROCAndCounts(t *testing.T) {
+	r := &Results{Models: []Model{{Name: "m"}, {Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance}}}
+	for _, name := range []string{"m", DistanceNullName} {
+		r.Scores = append(r.Scores, Score{Model: name, Extent: "base", Scored: true, TestPoints: 40, TestPointIDs: make([]int, 40),
+			PartialROC: []PartialROC{{E: 0.05, Defined: true, Ratio: 1.05, CILow: 0.98, CIHigh: 1.2, Iterations: 500, ResampleSize: 20}}})
+	}
+	a := newAnalysis(r)
+	key := MetricKeyPartialROC(0.05)
+	cases := []struct {
+		name   string
+		common int
+		iters  int
+		value  float64
+		want   string
+	}{
+		{"bootstrap reaches 1", 40, 500, 1.05, VsRandomNotShown},
+		{"drawn on other test points", 39, 500, 1.05, VsRandomPointAbove},
+		{"bootstrap not readable", 40, 10, 1.05, VsRandomPointAbove},
+		{"at or below 1", 40, 500, 0.95, VsRandomAtOrBelow},
+	}
+	for _, c := range cases {
+		r.Scores[0].PartialROC[0].Iterations = c.iters
+		g := NullGap{Extent: "base", Defined: true, CommonPoints: c.common, ModelValue: c.value, Reading: ReadingAbove}
+		a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g)
+		if g.ModelVsRandom != c.want {
+			t.Errorf("%s: %q, want %q", c.name, g.ModelVsRandom, c.want)
+		}
+	}
+	m := MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}
+	an := AboveNull{Metric: key, Model: "m", Null: DistanceNullName, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
+		Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, ModelValue: 1.05, NullValue: 0.9, Diff: 0.15, Low: 0.05, High: 0.25, Reading: ReadingAbove, ModelVsRandom: VsRandomPointAbove}}}
+	checkWords(t, "point estimate", aboveNullSentence(r, m, &an),
+		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: no readable bootstrap of its own on these test points)."}, []string{"no sign of skill"})
+	an.Gaps[0].ModelVsRandom, an.Gaps[0].ModelLow, an.Gaps[0].ModelHigh = VsRandomNotShown, 0.98, 1.2
+	checkWords(t, "not shown", aboveNullSentence(r, m, &an),
+		[]string{"; but its own partial ROC ratio at E = 0.05, 1.050, is not above 1, that of a random ranking, beyond noise (its 95% interval 0.980 to 1.200 reaches it)"}, []string{"its own the"})
+	// Counts past maxHeadlinePairs: 7 pairs, 3 above, of them one at or
+	// below 0.5 and one not shown above it.
+	var gaps []baseGap
+	for i, vs := range []string{VsRandomAbove, VsRandomAtOrBelow, VsRandomNotShown, "", "", "", ""} {
+		reading := ReadingNotAbove
+		if vs != "" {
+			reading = ReadingAbove
+		}
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Reading: reading, ModelVsRandom: vs}
+		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: reading}, g})
+	}
+	checkWords(t, "counts", aboveNullCounts(gaps),
+		[]string{"the model is above the null beyond noise (AUC) in 3 (in 2 of them the model itself is at or below 0.5, random, or not shown above it: no sign of skill), within noise in 4 and below in 0"}, nil)
+}
