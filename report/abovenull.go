@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"areasweep/metrics"
 )
 
 // PairKind says what a Paired record compares; its values are written to
@@ -83,6 +85,14 @@ type NullGap struct {
 	// NotJudged says why a defined gap is not read (Paired.NotJudgedReason);
 	// absent when it is read.
 	NotJudged string `json:"not_judged_reason,omitempty"`
+	// ModelVsRandom reads ModelValue, the model's own score on the common
+	// points, against a random ranking (VsRandomAbove, VsRandomNotShown,
+	// VsRandomAtOrBelow, VsRandomPointAbove; setModelVsRandom); ModelLow
+	// and ModelHigh are its 95% interval, 0 without one. Absent for an
+	// undefined gap.
+	ModelVsRandom string  `json:"model_vs_random,omitempty"`
+	ModelLow      float64 `json:"model_ci_low"`
+	ModelHigh     float64 `json:"model_ci_high"`
 	// nFormed is the number of resamples that formed the difference.
 	nFormed int
 }
@@ -100,23 +110,55 @@ func randomLevel(k MetricKind) (float64, bool) {
 }
 
 // aboveWithoutSkill tells whether g reads the model above the null while
-// the model itself scores no better than a random ranking (AUC at most
-// 0.5, partial ROC ratio at most 1): the null then does worse than random,
-// and being above it is no sign of skill. The known-answer study of a
-// model that is the reverse of a good one (AUC 0.165) read "above
-// distance_null beyond noise" on test points far from the training
-// points, where the null's AUC was 0.110.
+// the model itself is not shown to score better than a random ranking
+// (AUC 0.5, partial ROC ratio 1): its point estimate is at or below it
+// (VsRandomAtOrBelow), or its own 95% interval reaches it
+// (VsRandomNotShown). Being above the null is then no sign of skill. The
+// known-answer study of a model that is the reverse of a good one (AUC
+// 0.165) read "above distance_null beyond noise" on test points far from
+// the training points, where the null's AUC was 0.110; a model of AUC
+// 0.52 whose own interval held 0.5 was read above such a null with no
+// word that it showed no skill either.
 func aboveWithoutSkill(k MetricKind, g *NullGap) bool {
-	lvl, ok := randomLevel(k)
-	return ok && g != nil && g.Defined && g.Reading == ReadingAbove && g.ModelValue <= lvl
+	if g == nil || !g.Defined || g.Reading != ReadingAbove {
+		return false
+	}
+	v := g.vsRandom(k)
+	return v == VsRandomAtOrBelow || v == VsRandomNotShown
 }
 
 // noSkillClause is the words that follow "above the null" when
-// aboveWithoutSkill holds: the model's own score against random.
+// aboveWithoutSkill holds: the model's own score against random, at or
+// below it, or not above it beyond noise (with its interval).
 func noSkillClause(k MetricKind, label string, g *NullGap) string {
 	lvl, _ := randomLevel(k)
+	label = strings.TrimPrefix(label, "the ") // "its own the partial ROC ratio" was written
+	if g.vsRandom(k) == VsRandomNotShown {
+		return fmt.Sprintf("its own %s, %s, is not above %s, that of a random ranking, beyond noise (its 95%% interval %s to %s reaches it), so being above the null is no sign of skill",
+			label, f3(g.ModelValue), fmtG(lvl), f3(g.ModelLow), f3(g.ModelHigh))
+	}
 	return fmt.Sprintf("its own %s, %s, is at or below %s, that of a random ranking, so being above a null that does worse still is no sign of skill",
 		label, f3(g.ModelValue), fmtG(lvl))
+}
+
+// pointOnlyClause follows "above the null" when the model's own score is
+// above random on its point estimate with no interval to read it by
+// (VsRandomPointAbove set by the analysis): whether that is beyond noise
+// is not told, and the sentence says so.
+func pointOnlyClause(k MetricKind, label string, g *NullGap) string {
+	if g.ModelVsRandom != VsRandomPointAbove {
+		return ""
+	}
+	lvl, _ := randomLevel(k)
+	label = strings.TrimPrefix(label, "the ")
+	why := fmt.Sprintf("fewer than %d common test points (our cut-off)", MinPairedPoints)
+	switch {
+	case k == MetricPartialROC:
+		why = "no readable bootstrap of its own on these test points"
+	case g.CommonPoints >= MinPairedPoints:
+		why = "no placements of its own on these test points"
+	}
+	return fmt.Sprintf("; its own %s, %s, is above %s, that of a random ranking, on the point estimate only (no interval: %s)", label, f3(g.ModelValue), fmtG(lvl), why)
 }
 
 // readingWords is g's reading as a table shows it ("not above"), with
@@ -131,15 +173,16 @@ func readingWords(k MetricKind, g *NullGap) string {
 	w := strings.ReplaceAll(g.Reading, "_", " ")
 	if aboveWithoutSkill(k, g) {
 		lvl, _ := randomLevel(k)
-		w += noSkillTag(lvl)
+		w += noSkillTag(g.vsRandom(k), lvl)
 	}
 	return w
 }
 
-// noSkillTag follows "above" in a table where the model scores at or below
-// lvl, that of a random ranking (aboveWithoutSkill).
-func noSkillTag(lvl float64) string {
-	return fmt.Sprintf(" (model at or below %s, random: no sign of skill)", fmtG(lvl))
+// noSkillTag follows "above" in a table where the model is not shown
+// above lvl, that of a random ranking (aboveWithoutSkill; vs its
+// VsRandomAtOrBelow or VsRandomNotShown).
+func noSkillTag(vs string, lvl float64) string {
+	return fmt.Sprintf(" (model %s: no sign of skill)", noSkillWords(lvl, vs == VsRandomAtOrBelow, vs == VsRandomNotShown))
 }
 
 // kindOf is the kind of the metric of key among kinds (buildMetrics'),
@@ -152,31 +195,35 @@ func kindOf(kinds map[string]MetricKind, key string) MetricKind {
 }
 
 // noSkillCount says on how many of the extents where an reads the model
-// above the null the model itself scores at or below random
+// above the null the model itself is not shown above random
 // (aboveWithoutSkill), as " (on 1 of them the model itself is at or below
 // 0.5, ...)"; "" when on none. The counts alone counted the null plus
 // noise "above" the null on an extent where both ranked worse than
 // random (AUC 0.082 against 0.052).
 func (an *AboveNull) noSkillCount(k MetricKind) string {
 	n := 0
+	atOrBelow, notShown := false, false
 	for i := range an.Gaps {
-		if aboveWithoutSkill(k, &an.Gaps[i]) {
+		if g := &an.Gaps[i]; aboveWithoutSkill(k, g) {
 			n++
+			atOrBelow = atOrBelow || g.vsRandom(k) == VsRandomAtOrBelow
+			notShown = notShown || g.vsRandom(k) == VsRandomNotShown
 		}
 	}
 	if n == 0 {
 		return ""
 	}
 	lvl, _ := randomLevel(k)
+	words := noSkillWords(lvl, atOrBelow, notShown)
 	if an.Above == 1 {
 		// "on 1 of them" would count one of one.
-		return fmt.Sprintf(" (there the model itself is at or below %s, random: no sign of skill)", fmtG(lvl))
+		return fmt.Sprintf(" (there the model itself is %s: no sign of skill)", words)
 	}
 	on := fmt.Sprintf("on %d of them", n)
 	if n == an.Above {
 		on = "on each of them" // "on 2 of them" of 2 reads as a part
 	}
-	return fmt.Sprintf(" (%s the model itself is at or below %s, random: no sign of skill)", on, fmtG(lvl))
+	return fmt.Sprintf(" (%s the model itself is %s: no sign of skill)", on, words)
 }
 
 // gapReading reads a defined interval against 0.
@@ -224,6 +271,7 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 					if p.Defined {
 						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
 						g.Reading = gapReading(p.Low, p.High)
+						a.setModelVsRandom(m.Kind, m.Key, model, n.Name, &g)
 						if k := p.notJudgedKind(); k != "" {
 							g.Reading, g.NotJudged = k, p.NotJudgedReason()
 						}
@@ -301,7 +349,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 		if aboveWithoutSkill(m.Kind, g) {
 			fmt.Fprintf(&b, "; but %s", noSkillClause(m.Kind, score, g))
 		}
-		b.WriteString(".")
+		b.WriteString(pointOnlyClause(m.Kind, score, g) + ".")
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
@@ -474,11 +522,18 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // their reading on the base extent (above, within noise, below, not
 // told), each named under Analysis.
 func aboveNullCounts(gaps []baseGap) string {
-	var above, within, below, untold int
+	var above, within, below, untold, noSkill int
+	atOrBelow, notShown := false, false
 	for _, bg := range gaps {
 		switch bg.an.BaseReading {
 		case ReadingAbove:
 			above++
+			if aboveWithoutSkill(MetricAUC, bg.g) {
+				// Counted above, but no sign of skill: say how many.
+				noSkill++
+				atOrBelow = atOrBelow || bg.g.vsRandom(MetricAUC) == VsRandomAtOrBelow
+				notShown = notShown || bg.g.vsRandom(MetricAUC) == VsRandomNotShown
+			}
 		case ReadingBelow:
 			below++
 		case ReadingTooFew, ReadingTooFewResamples:
@@ -487,8 +542,12 @@ func aboveNullCounts(gaps []baseGap) string {
 			within++
 		}
 	}
-	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d, within noise in %d and below in %d",
-		gaps[0].an.BaseExtent, len(gaps), above, within, below)
+	skill := ""
+	if noSkill > 0 {
+		skill = fmt.Sprintf(" (in %d of them the model itself is %s: no sign of skill)", noSkill, noSkillWords(0.5, atOrBelow, notShown))
+	}
+	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d and below in %d",
+		gaps[0].an.BaseExtent, len(gaps), above, skill, within, below)
 	if untold > 0 {
 		out += fmt.Sprintf(", not told in %d (too few common test points or resamples, our cut-offs)", untold)
 	}
@@ -632,7 +691,8 @@ func aboveNullSummary(r *Results) (head []string, rows [][]cell) {
 // aboveNullNote explains the table.
 var aboveNullNote = "Model minus null on each extent, on the test points both score: AUC from the per-point placements " +
 	"(Student t 95% interval, n − 1 degrees of freedom), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
-	"\"above\": the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\", or 1 for the partial ROC ratio, where the model's own score is no better than a random ranking); " +
+	"\"above\": the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\", or 1 for the partial ROC ratio, where the model's own score is no better than a random ranking, " +
+	"and by \"model not shown above 0.5, random: no sign of skill\" where it is better but its own 95% interval reaches 0.5, or 1); " +
 	"\"not above\": it includes 0; \"below\": it lies wholly below 0; \"the same\": the difference and its interval are 0 (a copy of the null); " +
 	fmt.Sprintf("\"not judged\": fewer than %d common test points (%d for the partial ROC ratio), or an interval from fewer than %d formed resamples; the difference is shown, its interval is not read (our cut-offs). ",
 		MinPairedPoints, MinResampledPoints, MinPercentileResamples) +
@@ -640,7 +700,150 @@ var aboveNullNote = "Model minus null on each extent, on the test points both sc
 
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
-	"from the per-point placements: \"above\" when the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\" where the model's own AUC is no better than a random ranking), \"not above\" when it includes 0, " +
+	"from the per-point placements: \"above\" when the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\" where the model's own AUC is no better than a random ranking, and by \"model not shown above 0.5, random: no sign of skill\" where its own 95% interval reaches 0.5), \"not above\" when it includes 0, " +
 	"\"below\" when it lies wholly below 0, \"the same\" when the difference and its interval are 0 (a copy of the null), \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
 	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."
+
+// How a model's own score on the common test points of a model-minus-null
+// gap stands against a random ranking (an AUC of 0.5, a partial ROC ratio
+// of 1): NullGap.ModelVsRandom. Being above a null says nothing of skill
+// unless the model itself is above random.
+const (
+	// VsRandomAbove: the model's own 95% interval lies wholly above the
+	// random level.
+	VsRandomAbove = "above"
+	// VsRandomNotShown: the point estimate is above the random level but
+	// the 95% interval reaches it: skill is not shown beyond noise.
+	VsRandomNotShown = "not_shown_above"
+	// VsRandomAtOrBelow: the point estimate is at or below the random
+	// level.
+	VsRandomAtOrBelow = "at_or_below"
+	// VsRandomPointAbove: the point estimate is above the random level and
+	// there is no interval to read (fewer than MinPairedPoints common test
+	// points for AUC; for the partial ROC ratio no readable half-size
+	// bootstrap on exactly these test points): read from the point
+	// estimate alone.
+	VsRandomPointAbove = "above_point_estimate"
+)
+
+// aucInterval is the 95% interval of an AUC from the test points'
+// placements: auc ± t SE, t the 0.975 quantile of Student's t with n − 1
+// degrees of freedom (as for the paired differences); ok is false on
+// fewer than MinPairedPoints test points (our cut-off, as for a paired
+// difference), where no interval is read.
+func aucInterval(auc, se float64, n int) (lo, hi float64, ok bool) {
+	if n < MinPairedPoints {
+		return 0, 0, false
+	}
+	t := metrics.T975(n - 1)
+	return auc - t*se, auc + t*se, true
+}
+
+// setModelVsRandom reads the model's own score on g's common test points
+// against a random ranking (k's level) and fills g.ModelVsRandom,
+// g.ModelLow and g.ModelHigh. AUC: the interval of aucInterval from the
+// model's placements on the test points the null also scores. Partial ROC
+// ratio at E (key): the published half-size bootstrap's percentile
+// interval, when it was drawn on exactly the common test points and is
+// readable (BootstrapReadable). Without an interval the point estimate
+// alone decides (VsRandomAtOrBelow or VsRandomPointAbove).
+func (a *analysis) setModelVsRandom(k MetricKind, key, model, null string, g *NullGap) {
+	lvl, ok := randomLevel(k)
+	if !ok || !g.Defined {
+		return
+	}
+	lo, hi, ok := a.modelInterval(k, key, model, null, g)
+	switch {
+	case g.ModelValue <= lvl:
+		g.ModelVsRandom = VsRandomAtOrBelow
+	case !ok:
+		g.ModelVsRandom = VsRandomPointAbove
+	case lo > lvl:
+		g.ModelVsRandom = VsRandomAbove
+	default:
+		g.ModelVsRandom = VsRandomNotShown
+	}
+	if ok {
+		g.ModelLow, g.ModelHigh = lo, hi
+	}
+}
+
+// modelInterval is the 95% interval of the model's own score on g's
+// common test points (setModelVsRandom says which), ok false when there
+// is none.
+func (a *analysis) modelInterval(k MetricKind, key, model, null string, g *NullGap) (lo, hi float64, ok bool) {
+	sc, ns := findScore(a.r, model, g.Extent), findScore(a.r, null, g.Extent)
+	if sc == nil || ns == nil {
+		return 0, 0, false
+	}
+	switch k {
+	case MetricAUC:
+		v, ok := commonPlacements(sc, ns)
+		if !ok || len(v) != g.CommonPoints {
+			return 0, 0, false
+		}
+		return aucInterval(g.ModelValue, metrics.PlacementSE(v, metrics.Mean(v)), len(v))
+	case MetricPartialROC:
+		if sc.TestPoints != g.CommonPoints {
+			return 0, 0, false // the bootstrap was drawn on other test points
+		}
+		for _, pr := range sc.PartialROC {
+			if MetricKeyPartialROC(pr.E) == key && pr.Defined && BootstrapReadable(pr) {
+				return pr.CILow, pr.CIHigh, true
+			}
+		}
+	}
+	return 0, 0, false
+}
+
+// commonPlacements are the placements of sc's test points that ns (the
+// null's score on the same extent) also scores, in sc's order; false when
+// sc holds no placement per test point.
+func commonPlacements(sc, ns *Score) ([]float64, bool) {
+	if len(sc.Placements) != len(sc.TestPointIDs) {
+		return nil, false
+	}
+	in := make(map[int]bool, len(ns.TestPointIDs))
+	for _, id := range ns.TestPointIDs {
+		in[id] = true
+	}
+	var v []float64
+	for i, id := range sc.TestPointIDs {
+		if in[id] {
+			v = append(v, sc.Placements[i])
+		}
+	}
+	return v, true
+}
+
+// vsRandom is g's ModelVsRandom, or, for a gap without it (a results file
+// written before it existed, a gap made by hand), the reading of the
+// point estimate alone; "" for a metric with no random level.
+func (g *NullGap) vsRandom(k MetricKind) string {
+	if g.ModelVsRandom != "" {
+		return g.ModelVsRandom
+	}
+	lvl, ok := randomLevel(k)
+	switch {
+	case !ok || !g.Defined:
+		return ""
+	case g.ModelValue <= lvl:
+		return VsRandomAtOrBelow
+	}
+	return VsRandomPointAbove
+}
+
+// noSkillWords names, in a table's tag or a count, where the model's own
+// score stands against lvl, that of a random ranking: "at or below 0.5,
+// random" (VsRandomAtOrBelow), "not shown above 0.5, random"
+// (VsRandomNotShown), or both for a count over several extents.
+func noSkillWords(lvl float64, atOrBelow, notShown bool) string {
+	switch {
+	case atOrBelow && notShown:
+		return fmt.Sprintf("at or below %s, random, or not shown above it", fmtG(lvl))
+	case notShown:
+		return fmt.Sprintf("not shown above %s, random", fmtG(lvl))
+	}
+	return fmt.Sprintf("at or below %s, random", fmtG(lvl))
+}

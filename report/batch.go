@@ -152,9 +152,11 @@ type BatchRow struct {
 	// NullNotJudged says why the null comparison is not read
 	// (NullGap.NotJudged); "" when it is.
 	NullNotJudged string
-	// NullNoSkill: read above the null while the model's own AUC is at
-	// most 0.5 (aboveWithoutSkill), so the reading shows no skill.
-	NullNoSkill bool
+	// NullNoSkill: read above the null while the model's own AUC is not
+	// shown above 0.5 (aboveWithoutSkill), so the reading shows no skill:
+	// the gap's ModelVsRandom, VsRandomAtOrBelow or VsRandomNotShown; ""
+	// otherwise.
+	NullNoSkill string
 	// Warnings is the number of the study's warnings (StudySummary.Warnings).
 	Warnings int
 }
@@ -218,8 +220,8 @@ type BatchCounts struct {
 	// (not read), the rest of NullPairs undefined. NullDistance counts the
 	// pairs whose null is the distance-only null.
 	NullPairs, Above, NotAbove, Below, TooFew, NullDistance int
-	// AboveNoSkill counts the pairs of Above whose model's own AUC is at
-	// most 0.5 (BatchRow.NullNoSkill).
+	// AboveNoSkill counts the pairs of Above whose model's own AUC is not
+	// shown above 0.5 (BatchRow.NullNoSkill).
 	AboveNoSkill int
 }
 
@@ -327,7 +329,7 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 			switch row.NullReading {
 			case ReadingAbove:
 				s.Counts.Above++
-				if row.NullNoSkill {
+				if row.NullNoSkill != "" {
 					s.Counts.AboveNoSkill++
 				}
 			case ReadingNotAbove:
@@ -448,7 +450,9 @@ func studyRow(r *Results, id, model string) BatchRow {
 			row.NullDefined = true
 			row.NullDiff, row.NullLow, row.NullHigh = g.Diff, g.Low, g.High
 			row.NullReading, row.NullNotJudged = an.BaseReading, g.why()
-			row.NullNoSkill = aboveWithoutSkill(MetricAUC, g)
+			if aboveWithoutSkill(MetricAUC, g) {
+				row.NullNoSkill = g.vsRandom(MetricAUC)
+			}
 		}
 	}
 	return row

@@ -27,6 +27,34 @@ var verdictColumns = []string{
 	"extent", "diff", "ci_low", "ci_high", "method", "not_judged_reason",
 }
 
+// The null_reading values of summary.csv for a pair read above the null
+// whose model is not shown to rank better than random on the base extent
+// (BatchRow.NullNoSkill): written "above", they were counted with the
+// pairs that show skill by anyone filtering the column, while the summary
+// page and its methods text qualified them.
+const (
+	// CSVReadingAboveNoSkill: the model's own AUC is at or below 0.5.
+	CSVReadingAboveNoSkill = "above_no_skill"
+	// CSVReadingAboveSkillNotShown: the model's own AUC is above 0.5,
+	// its own 95% interval reaching 0.5.
+	CSVReadingAboveSkillNotShown = "above_skill_not_shown"
+)
+
+// csvNullReading is r's null_reading in summary.csv: NullReading, with
+// "above" told apart where the model shows no skill; "" without a null.
+func csvNullReading(r BatchRow) string {
+	if r.Null == "" {
+		return ""
+	}
+	switch r.NullNoSkill {
+	case VsRandomAtOrBelow:
+		return CSVReadingAboveNoSkill
+	case VsRandomNotShown:
+		return CSVReadingAboveSkillNotShown
+	}
+	return r.NullReading
+}
+
 // num formats a number in full (shortest exact) precision, or "" when it
 // is undefined.
 func num(v float64, ok bool) string {
@@ -70,13 +98,12 @@ func (s *BatchSummary) WriteCSV(w io.Writer) error {
 // summaryRecord is one summary.csv row of a study that ran.
 func summaryRecord(r BatchRow) []string {
 	spread := r.Extents > 0
-	null := r.Null != ""
 	return []string{
 		r.Study, "ok", r.Model, r.BaseExtent, strconv.Itoa(r.Extents),
 		num(r.AUCBase, r.AUCBaseDefined), count(r.TestPoints, r.TestPointsKnown), num(r.AUCMin, spread), r.MinExtent, num(r.AUCMax, spread), r.MaxExtent, num(r.AUCRange, spread),
 		r.EffectExtent, num(r.Effect, r.EffectDefined), num(r.EffectLow, r.EffectDefined), num(r.EffectHigh, r.EffectDefined),
 		count(r.EffectPoints, r.EffectDefined), r.EffectNotJudged, num(r.Tolerance, true), string(r.Verdict),
-		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), map[bool]string{true: r.NullReading}[null], r.NullNotJudged,
+		r.Null, num(r.NullDiff, r.NullDefined), num(r.NullLow, r.NullDefined), num(r.NullHigh, r.NullDefined), csvNullReading(r), r.NullNotJudged,
 		strconv.Itoa(r.Warnings), "",
 	}
 }

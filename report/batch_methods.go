@@ -347,22 +347,33 @@ func nullTail(tooFew, undefined int) string {
 }
 
 // noSkillSentence names the study-model pairs counted above the null
-// whose model's own AUC on the base extent is at most 0.5
-// (BatchRow.NullNoSkill): above a null that ranks worse than random, they
-// show no skill, which the count alone would suggest. "" when there are
-// none.
+// whose model's own AUC on the base extent is not shown above 0.5
+// (BatchRow.NullNoSkill): those at or below it are above a null that
+// ranks worse than random, those whose own interval reaches 0.5 are not
+// shown to rank better than random; neither shows skill, which the count
+// alone would suggest. "" when there are none.
 func (s *BatchSummary) noSkillSentence() string {
-	var pairs []string
+	var low, unshown []string
 	for _, r := range s.Rows {
-		if r.NullNoSkill {
-			pairs = append(pairs, r.Model+" of study "+r.Study)
+		switch r.NullNoSkill {
+		case VsRandomAtOrBelow:
+			low = append(low, r.Model+" of study "+r.Study)
+		case VsRandomNotShown:
+			unshown = append(unshown, r.Model+" of study "+r.Study)
 		}
 	}
-	if len(pairs) == 0 {
+	has := func(n int) string { return map[bool]string{true: "has", false: "have"}[n == 1] }
+	var parts []string
+	if len(low) > 0 {
+		parts = append(parts, fmt.Sprintf("%d (%s) %s an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still", len(low), joinList(low), has(len(low))))
+	}
+	if len(unshown) > 0 {
+		parts = append(parts, fmt.Sprintf("%d (%s) %s an AUC above 0.5 on the base extent whose own 95%% interval from the placements reaches 0.5: not shown to rank better than random", len(unshown), joinList(unshown), has(len(unshown))))
+	}
+	if len(parts) == 0 {
 		return ""
 	}
-	return fmt.Sprintf(" Of the %d above, %d (%s) %s an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still, which is no sign of skill.",
-		s.Counts.Above, len(pairs), joinList(pairs), map[bool]string{true: "has", false: "have"}[len(pairs) == 1])
+	return fmt.Sprintf(" Of the %d above, %s, which is no sign of skill.", s.Counts.Above, strings.Join(parts, "; and "))
 }
 
 // noNullSentence names the study-model pairs that have no comparison
@@ -517,16 +528,18 @@ func ies(n int) string {
 func (s *BatchSummary) MethodsText() string {
 	var b strings.Builder
 	b.WriteString("# Summary across studies\n\nReady to paste; every number comes from the studies' own results. Edit freely.\n")
+	// Every text goes through mdText: study ids, model names and the
+	// failed studies' errors (with their paths) are the user's.
 	for _, sec := range s.methodsSections() {
-		fmt.Fprintf(&b, "\n## %s\n", sec.Heading)
+		fmt.Fprintf(&b, "\n## %s\n", mdText(sec.Heading))
 		for _, p := range sec.Paragraphs {
-			b.WriteString("\n" + p + "\n")
+			b.WriteString("\n" + mdText(p) + "\n")
 		}
 		if len(sec.List) > 0 {
 			b.WriteString("\n")
 		}
 		for _, item := range sec.List {
-			b.WriteString("- " + item + "\n")
+			b.WriteString("- " + mdText(item) + "\n")
 		}
 	}
 	return strings.TrimRight(b.String(), "\n") + "\n"

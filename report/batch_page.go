@@ -136,9 +136,9 @@ func pageRowOf(r BatchRow, link string) pageRow {
 	}
 	if r.Null != "" {
 		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
-		if r.NullNoSkill {
+		if r.NullNoSkill != "" {
 			// As in the study's own tables (readingWords).
-			pr.Reading += noSkillTag(0.5)
+			pr.Reading += noSkillTag(r.NullNoSkill, 0.5)
 		}
 	}
 	if r.NullDefined {

@@ -38,6 +38,10 @@ type handModel struct {
 	// points, when set, is the model's test points on the base extent
 	// (a score record), and every difference's common test points.
 	points int
+	// vs, when set, is the null gap's ModelVsRandom, with the model's own
+	// interval own.
+	vs  string
+	own [2]float64
 }
 
 // handStudy builds the Results of one study by hand: extents "base" and
@@ -110,7 +114,7 @@ func handStudy(tol float64, models ...handModel) *Results {
 			an := AboveNull{Metric: "auc", Model: hm.name, Null: DistanceNullName, NullKind: NullDistance, BaseExtent: "base",
 				BaseReading: reading,
 				Gaps: []NullGap{{Extent: "base", Defined: true, Diff: n.diff, Low: n.low, High: n.high, Method: "placements", Reading: reading, CommonPoints: hm.points,
-					ModelValue: hm.aucs["base"], NullValue: hm.aucs["base"] - n.diff}}}
+					ModelValue: hm.aucs["base"], NullValue: hm.aucs["base"] - n.diff, ModelVsRandom: hm.vs, ModelLow: hm.own[0], ModelHigh: hm.own[1]}}}
 			s.AboveNull = append(s.AboveNull, an)
 		}
 	}
@@ -152,11 +156,14 @@ func handBatch() []StudyResult {
 }
 
 // TestSummaryAboveWithoutSkill: a model above the null beyond noise whose
-// own AUC on the base extent is at most 0.5 is counted above, and the
-// sentence says that this is no sign of skill (the known-answer batch
-// counted the reverse of a good model, AUC 0.165, above a null of AUC
-// 0.110 with nothing said). Values worked by hand: AUC 0.40 on base,
-// +0.10 (0.05 to 0.15) above the null.
+// own AUC on the base extent is at most 0.5, or above it with its own
+// interval reaching 0.5, is counted above, and the sentence says that
+// this is no sign of skill, in words that tell the two apart (the
+// known-answer batch counted the reverse of a good model, AUC 0.165,
+// above a null of AUC 0.110 with nothing said; a model of AUC 0.52 whose
+// own interval held 0.5 was counted above with nothing said). Values
+// worked by hand: AUC 0.40 on base, +0.10 (0.05 to 0.15) above the null;
+// AUC 0.52 (own interval 0.45 to 0.59), +0.12 (0.05 to 0.19).
 func TestSummaryAboveWithoutSkill(t *testing.T) {
 	const T = DefaultToleranceAUC
 	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
@@ -165,26 +172,40 @@ func TestSummaryAboveWithoutSkill(t *testing.T) {
 			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.07, 0.17}, points: 40})},
 		{ID: "rev", Report: "rev/report.html", Results: handStudy(T, handModel{name: "inverse", aucs: auc(0.40, 0.30),
 			effects: []effect{{"wide", -0.10, -0.13, -0.07}}, null: &effect{"base", 0.10, 0.05, 0.15}, points: 40})},
+		{ID: "weak", Report: "weak/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.52, 0.60),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.12, 0.05, 0.19}, points: 40, vs: VsRandomNotShown, own: [2]float64{0.45, 0.59}})},
 	}
 	s, err := Summarize(studies)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if s.Counts.Above != 2 || s.Counts.AboveNoSkill != 1 {
-		t.Errorf("above %d, of them without skill %d; want 2 and 1", s.Counts.Above, s.Counts.AboveNoSkill)
+	if s.Counts.Above != 3 || s.Counts.AboveNoSkill != 2 {
+		t.Errorf("above %d, of them without skill %d; want 3 and 2", s.Counts.Above, s.Counts.AboveNoSkill)
 	}
 	var b strings.Builder
 	for _, sec := range s.methodsSections() {
 		b.WriteString(strings.Join(sec.Paragraphs, " "))
 	}
 	checkWords(t, "summary methods", b.String(),
-		[]string{"AUC was above the null beyond noise for 2 of 2 study-model pairs",
-			"Of the 2 above, 1 (inverse of study rev) has an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still, which is no sign of skill."},
+		[]string{"AUC was above the null beyond noise for 3 of 3 study-model pairs",
+			"Of the 3 above, 1 (inverse of study rev) has an AUC at or below 0.5 on the base extent, that of a random ranking: above a null that does worse still; " +
+				"and 1 (m1 of study weak) has an AUC above 0.5 on the base extent whose own 95% interval from the placements reaches 0.5: not shown to rank better than random, which is no sign of skill."},
 		[]string{"m1 of study alpha"})
 	for _, r := range s.Rows {
-		want := map[string]string{"alpha": "above", "rev": "above (model at or below 0.5, random: no sign of skill)"}[r.Study]
+		want := map[string]string{"alpha": "above", "rev": "above (model at or below 0.5, random: no sign of skill)",
+			"weak": "above (model not shown above 0.5, random: no sign of skill)"}[r.Study]
 		if got := pageRowOf(r, "").Reading; got != want {
 			t.Errorf("study %s: the page reads %q, want %q", r.Study, got, want)
+		}
+	}
+	// summary.csv tells them apart too: "above" alone counted them with
+	// the pairs that show skill.
+	recs := csvRecords(t, s.WriteCSV)
+	col := slices.Index(recs[0], "null_reading")
+	for _, rec := range recs[1:] {
+		want := map[string]string{"alpha": ReadingAbove, "rev": "above_no_skill", "weak": "above_skill_not_shown"}[rec[0]]
+		if rec[col] != want {
+			t.Errorf("study %s: summary.csv null_reading %q, want %q", rec[0], rec[col], want)
 		}
 	}
 }
@@ -228,7 +249,7 @@ func TestSummarizeCounts(t *testing.T) {
 	for _, want := range []string{s.CountSentence(), ExtentSensitiveDefinition,
 		"Counted by study and model (6 pairs; the models of one study share its test points, so its pairs are not independent), AUC was extent-sensitive for 3, robust for 2 and undetermined for 1.",
 		"above the null beyond noise for 1 of 3 study-model pairs (against the distance-only null), within noise of it for 1 and below it for 1.",
-		"- delta: pipeline: open <models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
+		"- delta: pipeline: open \\<models>/m1.tif: no such file; second line", "Every study used T = 0.02, our own default",
 		"ran from -0.070 (study eps, model m2, extent wide, on 38 common test points) to +0.080 (study alpha, model m1, extent wide, on 12 common test points): 2 negative",
 		"and 4 positive, their magnitudes of median 0.045 over 6 study-model pairs from 5 studies.",
 		// zeta's count is unknown (no score record): 12, 40 (eps: the

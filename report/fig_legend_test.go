@@ -6,6 +6,7 @@ import (
 	"image"
 	"image/color"
 	"image/png"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -18,6 +19,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/recorder"
+
+	"areasweep/extent/vocab"
 )
 
 // drawnTexts draws f on a recording canvas and returns every text it
@@ -429,5 +432,43 @@ func TestAxisTitlesClearOfLeftEdge(t *testing.T) {
 		if !seen[name] {
 			t.Errorf("figure %s: no vertical axis title found (the sample must draw it)", name)
 		}
+	}
+}
+
+// TestROCBarSpansTheRampCurves: roc_curves' colour bar spans the areas of
+// the curves drawn on the area ramp, not the whole raster's, which is
+// drawn in its own style (dashed red) and took the bar's top: on the
+// sample (areas from the hull, 28,232 km², to region_b200, 225,545 km²,
+// and the whole raster at 231,212 km²) the largest ramp curve was a shade
+// short of the ramp's end, and on a raster much larger than the study
+// region most of the bar keyed no curve. Now the smallest and the largest
+// ramp curves take the ramp's two ends, and the whole raster and the base
+// region take no tick. One ramp curve alone takes its middle, where the
+// bar (widened about a single value) shows it.
+func TestROCBarSpansTheRampCurves(t *testing.T) {
+	r := analyzedSample(t)
+	es, _ := rocShown(rocExtents(r))
+	rk := rocRamp(es)
+	// Areas from the sample's results.json.
+	if math.Abs(rk.lo-28232.020485) > 1e-6 || math.Abs(rk.hi-225544.562162) > 1e-6 {
+		t.Errorf("ramp %g to %g km², want the hull's 28232.020485 to region_b200's 225544.562162", rk.lo, rk.hi)
+	}
+	for _, m := range rk.marks {
+		if m == 231211.644433 || m == 40624.396242 {
+			t.Errorf("a tick at %g km², the area of the whole raster or the base region", m)
+		}
+	}
+	svg, err := render(rocFigure(r), "svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, end := range []float64{0, 1} {
+		if stroke := "stroke:" + svgColor(areaRamp(end)); !strings.Contains(string(svg), stroke) {
+			t.Errorf("no curve drawn in the ramp's colour at %g (%s)", end, stroke)
+		}
+	}
+	one := rocRamp([]Extent{{ID: "b", Kind: vocab.KindBase, AreaKm2: 10}, {ID: "p", Kind: vocab.KindPointBuffer, AreaKm2: 50}, {ID: "w", Kind: vocab.KindWholeRaster, AreaKm2: 900}})
+	if one.lo != 50 || one.hi != 50 || one.t(50) != 0.5 {
+		t.Errorf("one ramp curve: ramp %g to %g, its place %g; want 50, 50 and 0.5", one.lo, one.hi, one.t(50))
 	}
 }

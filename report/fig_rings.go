@@ -503,6 +503,10 @@ func alignData(p *plot.Plot, c *draw.Canvas, x0, x1 vg.Length) {
 }
 
 // ringsNote says how to read the waterfall, in particular a negative step.
+// It is drawn under the panels of the first page, where the figure's
+// files carry it wherever they go; the caption points to it instead of
+// saying it again (the page showed it twice, in the drawing and the
+// caption).
 const ringsNote = "How to read a step: each arrow moves the AUC from one extent of the chain to the next larger one. " +
 	"The new ring has its own AUC (in the columns on the right); the AUC of the larger extent is the area-weighted mix of the inner extent's AUC and the ring's. " +
 	"A solid arrow pointing left (a negative step) means the ring's own AUC is below the inner extent's: the ring added background the model ranks above some test records; " +
@@ -771,7 +775,8 @@ func ringsFigures(r *Results) []figure {
 	caption := "Waterfall of the AUC along each nested chain, one panel per chain, one line per model in each row: the marker in the top row is the AUC on the chain's smallest extent, " +
 		"each arrow one step to the next larger extent (solid: a ring of new background; dashed: test records that first fall inside), the marker in the bottom row the AUC on the largest extent. " +
 		"Right of each panel, one column per model, headed by its marker: the AUC on the first and last extent and each ring's own AUC (– when undefined; a step of test records adds no ring). " +
-		"All AUCs use the test records inside each extent; there is no bar of uncertainty."
+		"All AUCs use the test records inside each extent; there is no bar of uncertainty. " +
+		"The note under the panels says how to read a step, a negative one in particular."
 	var fs []figure
 	for pi, pg := range pages {
 		f := figure{Name: ringPageName(pi), Title: "AUC step by step along each nested chain", W: w}
@@ -783,7 +788,6 @@ func ringsFigures(r *Results) []figure {
 			chains = append(chains, sg.title(len(s.ModelNames)))
 		}
 		if pi == 0 {
-			f.Note = ringsNote
 			f.Caption = caption
 			if split {
 				f.Caption += fmt.Sprintf(" The value columns of more than %d models do not fit beside one panel: a chain's models are split over panels of at most %d (titled part 1, part 2, ...).", perPanel, perPanel)

@@ -146,10 +146,7 @@ func rocFigure(r *Results) figure {
 	}
 	all, noCurve := rocCurveExtents(r, rocExtents(r))
 	es, thinned := rocShown(all)
-	amin, amax := 0.0, 0.0
-	if len(es) > 0 {
-		amin, amax = es[0].AreaKm2, es[len(es)-1].AreaKm2
-	}
+	rk := rocRamp(es)
 	f := figure{Name: rocFigureName, Title: "ROC curves on the area axis", W: twoColumns}
 	barW := 24 * vg.Millimeter
 	if !rampCurves(es) {
@@ -176,25 +173,43 @@ func rocFigure(r *Results) figure {
 			plots[j] = make([]*plot.Plot, cols)
 		}
 		for i, model := range panels {
-			p, err := rocPanel(r, model, es, e, amin, amax, panelW, cols, diag)
+			p, err := rocPanel(r, model, es, e, rk, panelW, cols, diag)
 			if err != nil {
 				return err
 			}
 			plots[i/cols][i%cols] = p
 		}
 		drawTiles(plots, rest)
-		if amax > 0 && barW > 0 {
+		if rk.hi > 0 && barW > 0 {
 			barC.Min.Y += (rest.Max.Y - rest.Min.Y) * 0.15
 			barC.Max.Y -= (rest.Max.Y - rest.Min.Y) * 0.15
-			var marks []float64
-			for _, ex := range es {
-				marks = append(marks, ex.AreaKm2)
-			}
-			drawAreaBar(barC, amin, amax, marks)
+			drawAreaBar(barC, rk.lo, rk.hi, rk.marks)
 		}
 		return nil
 	}
 	return f
+}
+
+// rocRamp is the area ramp of the ROC curves (log scale, km²): from the
+// smallest to the largest area of the extents of es drawn on it, with a
+// mark at each; the base region and the whole raster keep their own
+// styles (rocAnchorStyle), so they neither stretch it nor take a mark, as
+// on the maps (mapKeyOf). Spanning the whole raster's area, the bar's
+// colours past the largest buffer keyed no curve (most of the bar where
+// the raster is much larger than the study region).
+func rocRamp(es []Extent) *rampKey {
+	rk := &rampKey{lo: math.Inf(1), hi: math.Inf(-1), log: true} // drawAreaBar labels its axis
+	for _, ex := range es {
+		if _, anchor := rocAnchorStyle(ex.Kind); anchor {
+			continue
+		}
+		rk.lo, rk.hi = math.Min(rk.lo, ex.AreaKm2), math.Max(rk.hi, ex.AreaKm2)
+		rk.marks = append(rk.marks, ex.AreaKm2)
+	}
+	if len(rk.marks) == 0 {
+		rk.lo, rk.hi = 0, 0
+	}
+	return rk
 }
 
 // rocCaption is the ROC figure's caption: what the axes and curves are,
@@ -219,7 +234,7 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 	if len(anchors) > 0 {
 		anchorNote = ", except " + strings.Join(anchors, " and ") + ", drawn as on the maps. "
 	}
-	curves := "one curve per extent coloured by its area (colour bar, log scale; dark = small; a tick for each curve)" + anchorNote
+	curves := "one curve per extent coloured by its area (colour bar from the smallest to the largest of these areas, log scale; dark = small; a tick for each curve)" + anchorNote
 	switch {
 	case len(es) == 0:
 		curves = "no curve: no model or null is scored on any extent. "
@@ -287,10 +302,10 @@ var rocBand = color.Gray{Y: 225}
 
 // rocPanel draws model's panel: the null's shade, the partial ROC band at
 // e, the random prediction (diag) and one curve per extent of es on the
-// area ramp from amin to amax (the anchors in their own styles), largest
+// area ramp rk (rocRamp; the anchors in their own styles), largest
 // first. The panel of a model or null scored on no extent holds only
 // rocUnscoredNote.
-func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
+func rocPanel(r *Results, model string, es []Extent, e float64, rk *rampKey, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
 	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 	p.X.Label.Text = "share of extent predicted present"
@@ -359,7 +374,7 @@ func rocPanel(r *Results, model string, es []Extent, e, amin, amax float64, pane
 		if err != nil {
 			return nil, fmt.Errorf("report: figure roc: %w", err)
 		}
-		l.LineStyle = lineStyle(areaRamp(logPosition(ex.AreaKm2, amin, amax)), 1.1, nil)
+		l.LineStyle = lineStyle(areaRamp(rk.t(ex.AreaKm2)), 1.1, nil)
 		if ls, ok := rocAnchorStyle(ex.Kind); ok {
 			l.LineStyle = ls
 		}

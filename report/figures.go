@@ -30,9 +30,6 @@ type figure struct {
 	Name    string // file base name; the inline SVG gets id "fig-" + Name
 	Title   string
 	Caption string
-	// Note is a sentence printed under the figure in the page and drawn
-	// into the figure files, e.g. how to read a negative step.
-	Note string
 	// Dear marks a figure whose renderings cost several times the
 	// others': they start first (renderTasks).
 	Dear bool

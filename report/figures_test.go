@@ -524,10 +524,10 @@ func TestMapPanels(t *testing.T) {
 }
 
 // TestWaterfallPanels checks that every chain summary with at least two
-// members is drawn exactly once, that a panel only holds models with the
-// same steps, and that the page prints how to read a negative step.
+// members is drawn exactly once and that a panel only holds models with
+// the same steps.
 func TestWaterfallPanels(t *testing.T) {
-	dir, r := writeSample(t)
+	r := analyzedSample(t)
 	s := r.Sensitivity
 	seen := map[*ChainSummary]int{}
 	for _, w := range waterfallPanels(s) {
@@ -550,13 +550,41 @@ func TestWaterfallPanels(t *testing.T) {
 			t.Errorf("chain %s, model %s drawn %d times, want %d", c.Chain, c.Model, seen[c], want)
 		}
 	}
+}
+
+// TestRingsNoteSaidOnce: how to read a step of ring_steps is said once,
+// drawn under the panels of the figure (README's figure table: "a note
+// drawn under the panels"), so that every file of the figure carries it;
+// the caption points to it. The page showed it twice, in the drawing and
+// again after the caption.
+func TestRingsNoteSaidOnce(t *testing.T) {
+	dir, r := writeSample(t)
+	svg, err := os.ReadFile(filepath.Join(dir, "figures", ringFigureName+".svg"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var lines []string
+	for _, m := range svgTextElement.FindAllStringSubmatch(string(svg), -1) {
+		lines = append(lines, html.UnescapeString(m[1]))
+	}
+	if drawn := strings.Join(lines, " "); !strings.Contains(drawn, ringsNote) {
+		t.Errorf("ring_steps.svg does not draw the note %q", ringsNote)
+	}
 	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(string(page), htmlEscape(ringsNote)) {
-		t.Error("the page lacks the sentence on reading a negative step")
+	if n := strings.Count(string(page), "How to read a step"); n != 1 {
+		t.Errorf("the page says how to read a step %d times, want once (in the drawing)", n)
 	}
+	for _, f := range figures(r) {
+		if f.Name != ringFigureName {
+			continue
+		}
+		checkWords(t, "ring_steps caption", f.Caption, []string{"The note under the panels says how to read a step"}, strings.Split(ringsNote, ". "))
+		return
+	}
+	t.Fatal("no ring_steps figure")
 }
 
 // TestFigureEdgeCases draws every figure (SVG) for runs cut down from the

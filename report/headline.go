@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
-	"areasweep/metrics"
 )
 
 // findSpread returns the spread of metric key for model, or nil.
@@ -390,18 +389,17 @@ func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float
 
 // belowRandom lists the extents of sp (an AUC spread) on which the
 // model's AUC is below 0.5, the AUC of a random ranking, beyond noise: the
-// 95% interval from the test points' placements, AUC ± t SE (t the 0.975
-// quantile with n − 1 degrees of freedom, as for the paired differences),
-// lies wholly below 0.5. An extent with fewer than MinPairedPoints test
-// points is not read (our cut-off, as for a paired difference).
+// 95% interval from the test points' placements (aucInterval) lies wholly
+// below 0.5. An extent with fewer than MinPairedPoints test points has no
+// interval and is not read (our cut-off, as for a paired difference).
 func belowRandom(r *Results, sp *Spread) []string {
 	var out []string
 	for _, id := range sp.Extents {
 		sc := findScore(r, sp.Model, id)
-		if sc == nil || sc.TestPoints < MinPairedPoints {
+		if sc == nil {
 			continue
 		}
-		if sc.AUC+metrics.T975(sc.TestPoints-1)*sc.AUCSE < 0.5 {
+		if _, hi, ok := aucInterval(sc.AUC, sc.AUCSE, sc.TestPoints); ok && hi < 0.5 {
 			out = append(out, id)
 		}
 	}

@@ -175,11 +175,11 @@ func verdictBadge(verdict Judgement, sentence string) badge {
 
 // figureView is one figure of the page.
 type figureView struct {
-	Number                     int
-	Name, Title, Caption, Note string
-	SVG                        template.HTML // a marker for the SVG (spliceSVGs)
-	DPI                        int
-	WidthMM                    string
+	Number               int
+	Name, Title, Caption string
+	SVG                  template.HTML // a marker for the SVG (spliceSVGs)
+	DPI                  int
+	WidthMM              string
 }
 
 // pageView is everything report.html.tmpl shows.
@@ -280,7 +280,7 @@ func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i i
 	}
 	for i, rf := range figs {
 		v.Figures = append(v.Figures, figureView{
-			Number: i + 1, Name: rf.fig.Name, Title: rf.fig.Title, Caption: rf.fig.Caption, Note: rf.fig.Note,
+			Number: i + 1, Name: rf.fig.Name, Title: rf.fig.Title, Caption: rf.fig.Caption,
 			SVG:     svg(i),
 			DPI:     pngDPI,
 			WidthMM: strconv.Itoa(int(math.Round(float64(rf.fig.W / vg.Millimeter)))),

@@ -40,31 +40,33 @@ func methodsText(r *Results) string {
 	if sw == "" {
 		sw = "areasweep"
 	}
-	fmt.Fprintf(&b, "# Methods text (%s)\n\n", sw)
-	b.WriteString("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.\n\n")
+	// Every text goes through mdText: the sentences hold the user's
+	// paths, names and ids, and are the same as those of report.html.
+	fmt.Fprintf(&b, "# %s\n\n", mdText("Methods text ("+sw+")"))
+	b.WriteString(mdText("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.") + "\n\n")
 	b.WriteString("## Methods\n\n")
 
-	methodsFamily(&b, r, sw)
-	methodsRecords(&b, r)
-	methodsScores(&b, r)
-	methodsInference(&b, r)
-
+	var m strings.Builder
+	methodsFamily(&m, r, sw)
+	methodsRecords(&m, r)
+	methodsScores(&m, r)
+	methodsInference(&m, r)
 	// Results in numbers.
-	b.WriteString("Results: ")
-	b.WriteString(resultNumbers(r))
-	b.WriteString("\n\n")
+	m.WriteString("Results: ")
+	m.WriteString(resultNumbers(r))
+	b.WriteString(mdText(m.String()) + "\n\n")
 
 	b.WriteString("## Reply to a reviewer\n\n")
-	b.WriteString(reviewerText(r))
-	b.WriteString("\n\n")
+	reply := reviewerText(r)
+	b.WriteString(mdText(reply) + "\n\n")
 	b.WriteString("## References\n\n")
 	refs := slices.Clone(references)
-	if strings.Contains(b.String(), "Hijmans 2012") {
+	if strings.Contains(m.String()+reply, "Hijmans 2012") {
 		refs = append(refs, hijmans2012)
 		slices.Sort(refs)
 	}
 	for _, ref := range refs {
-		b.WriteString("- " + ref + "\n")
+		b.WriteString("- " + mdText(ref) + "\n")
 	}
 	return b.String()
 }
@@ -1003,9 +1005,10 @@ func reviewerNullText(s *Sensitivity) string {
 	type byNull struct {
 		name, kind              string
 		above, not, below, same []string
-		// noSkill: above the null, but at or below a random ranking.
-		noSkill []string
-		few     []string
+		// noSkill: above the null, but at or below a random ranking;
+		// unshown: above it, but not above random beyond noise.
+		noSkill, unshown []string
+		few              []string
 	}
 	var ns []*byNull
 	index := map[string]*byNull{}
@@ -1024,6 +1027,9 @@ func reviewerNullText(s *Sensitivity) string {
 			n.few = append(n.few, fmt.Sprintf("%s (%d common test record%s)", an.Model, g.CommonPoints, Plural(g.CommonPoints)))
 		case g.zero():
 			n.same = append(n.same, an.Model)
+		case aboveWithoutSkill(MetricAUC, g) && g.vsRandom(MetricAUC) == VsRandomNotShown:
+			n.unshown = append(n.unshown, fmt.Sprintf("%s (difference %s, 95%% interval %s to %s; AUC %s, 95%% interval %s to %s)", an.Model, signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0),
+				f3(g.ModelValue), f3(g.ModelLow), f3(g.ModelHigh)))
 		case aboveWithoutSkill(MetricAUC, g):
 			n.noSkill = append(n.noSkill, fmt.Sprintf("%s (difference %s, 95%% interval %s to %s; AUC %s)", an.Model, signedSmall(g.Diff), signedVs(g.Low, 0), signedVs(g.High, 0), f3(g.ModelValue)))
 		case an.BaseReading == ReadingAbove:
@@ -1064,6 +1070,11 @@ func reviewerNullText(s *Sensitivity) string {
 			// Above a null that ranks worse than random: no skill shown.
 			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise but at or below 0.5, that of a random ranking, so on that extent this shows only that %s ranks the test records worse still, not skill. ",
 				on, aucOf(n.noSkill), n.name, n.name)
+		}
+		if len(n.unshown) > 0 {
+			// Above the null, but the model's own interval reaches 0.5.
+			fmt.Fprintf(&b, "On %s %s above that of %s beyond noise but not above 0.5, that of a random ranking, beyond noise (the model's own 95%% interval from the placements reaches 0.5), so on that extent this does not show skill. ",
+				on, aucOf(n.unshown), n.name)
 		}
 		if len(n.same) > 0 {
 			// Every placement equal to the null's: a copy of it.

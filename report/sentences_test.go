@@ -2074,3 +2074,143 @@ func TestRankingOrderNotCompared(t *testing.T) {
 		}
 	}
 }
+
+// TestAboveNullSkillNotShown: a model read above the null beyond noise is
+// qualified by its own AUC against 0.5, read with its own 95% interval
+// from the placements on the common test points: at or below 0.5 (point
+// estimate), not shown above 0.5 (the interval reaches it), or above it
+// (no qualifier). Before, only a point AUC at or below 0.5 was qualified,
+// and a model of AUC 0.52 whose interval held 0.5 read "above" with no
+// word on skill. The sample's 21 test points on base get the placements
+// below; intervals from SciPy (scipy.stats.t.ppf(0.975, 20) = 2.0860,
+// numpy's sample SD / sqrt(21)): 0.374 to 0.666, 0.515 to 0.525.
+func TestAboveNullSkillNotShown(t *testing.T) {
+	spread := func(mid, half float64) []float64 {
+		v := []float64{mid}
+		for range 10 {
+			v = append(v, mid-half, mid+half)
+		}
+		return v
+	}
+	cases := []struct {
+		name       string
+		placements []float64
+		vs         string
+		want       []string
+		notWant    []string
+	}{
+		{"AUC 0.52, interval holds 0.5", spread(0.52, 0.32), VsRandomNotShown,
+			[]string{"its own AUC, 0.520, is not above 0.5, that of a random ranking, beyond noise (its 95% interval 0.374 to 0.666 reaches it), so being above the null is no sign of skill",
+				"(model not shown above 0.5, random: no sign of skill)"},
+			[]string{"at or below 0.5"}},
+		{"AUC 0.52, interval above 0.5", spread(0.52, 0.01), VsRandomAbove, nil,
+			[]string{"no sign of skill", "not shown"}},
+		{"AUC 0.45", spread(0.45, 0.32), VsRandomAtOrBelow,
+			[]string{"its own AUC, 0.450, is at or below 0.5, that of a random ranking", "(model at or below 0.5, random: no sign of skill)"},
+			[]string{"not shown", "beyond noise (its 95%"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := withNull(t)
+			mean := 0.0
+			for _, v := range c.placements {
+				mean += v / float64(len(c.placements))
+			}
+			for i := range r.Scores {
+				if sc := &r.Scores[i]; sc.Model == "good" && sc.Extent == "base" {
+					if len(sc.Placements) != len(c.placements) {
+						t.Fatalf("the sample holds %d test points on base, the case %d", len(sc.Placements), len(c.placements))
+					}
+					sc.Placements, sc.AUC = c.placements, mean
+				}
+			}
+			r.Paired = append(r.Paired, nullPaired(r)...)
+			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) {
+				p.A, p.B, p.Diff, p.Low, p.High = mean, mean-0.12, 0.12, 0.05, 0.19
+			})
+			s := analyzed(t, r)
+			var an *AboveNull
+			for i := range s.AboveNull {
+				if s.AboveNull[i].Metric == "auc" && s.AboveNull[i].Model == "good" {
+					an = &s.AboveNull[i]
+				}
+			}
+			if an == nil {
+				t.Fatal("no AUC comparison of good with the null")
+			}
+			g := an.gap("base")
+			if g.Reading != ReadingAbove || g.ModelVsRandom != c.vs {
+				t.Fatalf("reading %s, model against random %q; want above and %q", g.Reading, g.ModelVsRandom, c.vs)
+			}
+			all := strings.Join([]string{an.Sentence, s.Headline, readingWords(MetricAUC, g)}, " | ")
+			checkWords(t, "sentence, headline and table", all, c.want, c.notWant)
+			reply := reviewerNullText(s)
+			switch c.vs {
+			case VsRandomNotShown:
+				checkWords(t, "reply", reply, []string{"AUC 0.520, 95% interval 0.374 to 0.666) is above that of distance_null beyond noise but not above 0.5, that of a random ranking, beyond noise"}, []string{"worse still"})
+			case VsRandomAtOrBelow:
+				checkWords(t, "reply", reply, []string{"at or below 0.5, that of a random ranking, so on that extent this shows only"}, []string{"not above 0.5"})
+			default:
+				checkWords(t, "reply", reply, []string{"is above that of distance_null beyond noise."}, []string{"random ranking"})
+			}
+		})
+	}
+}
+
+// TestNoSkillPartialROCAndCounts: the model's own partial ROC ratio is
+// read against 1 by its published bootstrap's interval when that was drawn
+// on the common test points and is readable, else by the point estimate,
+// which the sentence then says; the qualifier names the ratio without
+// "its own the" (written before); and the headline's counts, used past 6
+// pairs, say how many of the pairs above show no skill. Intervals and
+// counts are hand-made.
+func TestNoSkillPartialROCAndCounts(t *testing.T) {
+	r := &Results{Models: []Model{{Name: "m"}, {Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance}}}
+	for _, name := range []string{"m", DistanceNullName} {
+		r.Scores = append(r.Scores, Score{Model: name, Extent: "base", Scored: true, TestPoints: 40, TestPointIDs: make([]int, 40),
+			PartialROC: []PartialROC{{E: 0.05, Defined: true, Ratio: 1.05, CILow: 0.98, CIHigh: 1.2, Iterations: 500, ResampleSize: 20}}})
+	}
+	a := newAnalysis(r)
+	key := MetricKeyPartialROC(0.05)
+	cases := []struct {
+		name   string
+		common int
+		iters  int
+		value  float64
+		want   string
+	}{
+		{"bootstrap reaches 1", 40, 500, 1.05, VsRandomNotShown},
+		{"drawn on other test points", 39, 500, 1.05, VsRandomPointAbove},
+		{"bootstrap not readable", 40, 10, 1.05, VsRandomPointAbove},
+		{"at or below 1", 40, 500, 0.95, VsRandomAtOrBelow},
+	}
+	for _, c := range cases {
+		r.Scores[0].PartialROC[0].Iterations = c.iters
+		g := NullGap{Extent: "base", Defined: true, CommonPoints: c.common, ModelValue: c.value, Reading: ReadingAbove}
+		a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g)
+		if g.ModelVsRandom != c.want {
+			t.Errorf("%s: %q, want %q", c.name, g.ModelVsRandom, c.want)
+		}
+	}
+	m := MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}
+	an := AboveNull{Metric: key, Model: "m", Null: DistanceNullName, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
+		Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, ModelValue: 1.05, NullValue: 0.9, Diff: 0.15, Low: 0.05, High: 0.25, Reading: ReadingAbove, ModelVsRandom: VsRandomPointAbove}}}
+	checkWords(t, "point estimate", aboveNullSentence(r, m, &an),
+		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: no readable bootstrap of its own on these test points)."}, []string{"no sign of skill"})
+	an.Gaps[0].ModelVsRandom, an.Gaps[0].ModelLow, an.Gaps[0].ModelHigh = VsRandomNotShown, 0.98, 1.2
+	checkWords(t, "not shown", aboveNullSentence(r, m, &an),
+		[]string{"; but its own partial ROC ratio at E = 0.05, 1.050, is not above 1, that of a random ranking, beyond noise (its 95% interval 0.980 to 1.200 reaches it)"}, []string{"its own the"})
+	// Counts past maxHeadlinePairs: 7 pairs, 3 above, of them one at or
+	// below 0.5 and one not shown above it.
+	var gaps []baseGap
+	for i, vs := range []string{VsRandomAbove, VsRandomAtOrBelow, VsRandomNotShown, "", "", "", ""} {
+		reading := ReadingNotAbove
+		if vs != "" {
+			reading = ReadingAbove
+		}
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Reading: reading, ModelVsRandom: vs}
+		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: reading}, g})
+	}
+	checkWords(t, "counts", aboveNullCounts(gaps),
+		[]string{"the model is above the null beyond noise (AUC) in 3 (in 2 of them the model itself is at or below 0.5, random, or not shown above it: no sign of skill), within noise in 4 and below in 0"}, nil)
+}

@@ -213,6 +213,12 @@
 #     some of the coarse model's pe_ratio values moved by one unit in the
 #     last place; no index, interval or other number changed, and
 #     scores.csv's hash is the same).
+#   - rewritten on branch h13 of 2026-12-05 (each model-minus-null gap
+#     under sensitivity.above_null gains model_vs_random, model_ci_low
+#     and model_ci_high: the model's own score against a random ranking
+#     on the common test points, which decides the no-skill qualifier;
+#     the demo's models are above random on every extent, so no sentence
+#     changed; scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
