@@ -86,13 +86,7 @@ func methodsFamily(b *strings.Builder, r *Results, sw string) {
 	fam := familyList(ok)
 	fmt.Fprintf(b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
 		len(models), Plural(len(models)), joinList(models), len(ok), Plural(len(ok)), sw, joinList(fam))
-	if len(s.SkippedExtents) > 0 {
-		var sk []string
-		for _, e := range s.SkippedExtents {
-			sk = append(sk, fmt.Sprintf("%s (%s)", e.ID, e.Reason))
-		}
-		fmt.Fprintf(b, " Left out: %s.", joinList(sk))
-	}
+	methodsLeftOut(b, s, len(ok))
 	if len(s.Unscored) > 0 {
 		var us []string
 		for _, u := range s.Unscored {
@@ -100,6 +94,38 @@ func methodsFamily(b *strings.Builder, r *Results, sw string) {
 		}
 		fmt.Fprintf(b, " Not scored: %s.", joinList(us))
 	}
+}
+
+// methodsLeftOut writes the extents left out of the scoring, apart by
+// whether the family's count of n holds them: an extent of the family
+// that no model could be scored on is one of the n, so the sentence says
+// how many remain; an empty or duplicate extent was built but is not one
+// of them ("a family of 15 ... Left out: X (same cells as base)" read as
+// 14 scored when 15 were).
+func methodsLeftOut(b *strings.Builder, s *Sensitivity, n int) {
+	var of, besides []string
+	for _, e := range s.SkippedExtents {
+		w := fmt.Sprintf("%s (%s)", e.ID, e.Reason)
+		if e.Status == vocab.StatusOK {
+			of = append(of, w)
+		} else {
+			besides = append(besides, w)
+		}
+	}
+	if len(of) > 0 {
+		fmt.Fprintf(b, " Left out of the %d: %s, so %d %s scored.", n, joinList(of), len(s.ScoredExtents), wasWere(len(s.ScoredExtents)))
+	}
+	if len(besides) > 0 {
+		fmt.Fprintf(b, " Also built but not among the %d: %s.", n, joinList(besides))
+	}
+}
+
+// wasWere is the past of "to be" for a count of n.
+func wasWere(n int) string {
+	if n == 1 {
+		return "was"
+	}
+	return "were"
 }
 
 // methodsRecords writes how many occurrence records were used, why the

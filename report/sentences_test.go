@@ -2214,3 +2214,43 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 	checkWords(t, "counts", aboveNullCounts(gaps),
 		[]string{"the model is above the null beyond noise (AUC) in 3 (in 2 of them the model itself is at or below 0.5, random, or not shown above it: no sign of skill), within noise in 4 and below in 0"}, nil)
 }
+
+// TestMethodsLeftOutCounts: the methods paragraph's "family of N" and the
+// extents it leaves out agree with the count scored. An extent of the
+// family on which no model could be scored is one of the N, and the text
+// says how many remain; an empty or duplicate extent was built but is not
+// one of the N. The sample (8 extents scored, one empty, one duplicate)
+// read "a family of 8 ... Left out: ecoregions_min5 (...) and points_b400
+// (...)", which a reader takes for 6 scored when 8 were. Counts worked by
+// hand from the sample's extents.
+func TestMethodsLeftOutCounts(t *testing.T) {
+	cases := []struct {
+		name          string
+		build         func(r *Results)
+		want, notWant []string
+	}{
+		{name: "an empty and a duplicate extent are not of the family",
+			want:    []string{"on a family of 8 evaluation extents", "Also built but not among the 8: ecoregions_min5 (the extent has no valid cells) and points_b400 (same cells as whole).", "on 8 evaluation extents (the base extent and 7 others)"},
+			notWant: []string{"Left out"}},
+		{name: "an extent no model could be scored on is one of the family",
+			build: func(r *Results) {
+				for i := range r.Scores {
+					if r.Scores[i].Extent == "points_b100" {
+						r.Scores[i].Scored, r.Scores[i].NotScored = false, "no test points inside this extent"
+					}
+				}
+			},
+			want: []string{"on a family of 8 evaluation extents", "Left out of the 8: points_b100 (no model could be scored), so 7 were scored.", "Also built but not among the 8: ecoregions_min5",
+				"on 7 evaluation extents (the base extent and 6 others)"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			r := loadSample(t)
+			if c.build != nil {
+				c.build(r)
+			}
+			analyzed(t, r)
+			checkWords(t, "methods", methodsText(r), c.want, c.notWant)
+		})
+	}
+}
