@@ -108,8 +108,28 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// says "every one is 0").
 		return fmt.Sprintf("%s (every difference from %s is 0)", mv.Verdict, mv.Base)
 	}
+	if k := largestDefined(mv.Diffs); k >= 0 && mv.Diffs[k].notJudged() && math.Abs(mv.Diffs[k].Diff) > math.Abs(d.Diff) {
+		// The verdict rests on the judged differences, but a larger one
+		// on too few test points exists: "largest difference" alone would
+		// misstate it (the reply's range reaches that extent).
+		big := mv.Diffs[k]
+		return fmt.Sprintf("%s (largest judged difference from %s %s on %s, 95%% interval %s to %s; a larger one, %s on %s, is not judged, %s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
+			signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), signedSmall(big.Diff), big.Extent, big.why())
+	}
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
 		signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), undeterminedWhy(mv, d))
+}
+
+// largestDefined is the index in ds of the defined difference of largest
+// |Diff|, judged or not, or -1 when none is defined.
+func largestDefined(ds []ExtentDifference) int {
+	k := -1
+	for i, d := range ds {
+		if d.Defined && (k < 0 || math.Abs(d.Diff) > math.Abs(ds[k].Diff)) {
+			k = i
+		}
+	}
+	return k
 }
 
 // undeterminedWhy says, after the largest difference d of an undetermined

@@ -2,6 +2,7 @@ package report
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -15,7 +16,13 @@ import (
 // sentence then seemed to count among those beyond the tolerance (an audit of edge
 // sweep: 10 test points, one extent holding 9). The differences are those
 // of the sample run (results.json of testdata/report): good's AUC on
-// whole, +0.138 (0.063 to 0.213), is the largest of the judged ones.
+// whole, +0.138 (0.063 to 0.213), is the largest of the judged ones. The
+// headline's and methods' phrase then called it "largest difference from
+// base" with no word of the larger one (a run on 10 test points read
+// "largest difference from base -0.107 on points_50km" beside -0.161 on
+// points_25km, not judged, and a reply whose AUC range reached
+// points_25km); it is now the "largest judged difference", and the larger
+// one is named as not judged.
 func TestSensitiveVerdictCitesJudged(t *testing.T) {
 	r := loadSample(t)
 	if setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
@@ -35,10 +42,13 @@ func TestSensitiveVerdictCitesJudged(t *testing.T) {
 	checkWords(t, "sentence", mv.Sentence,
 		[]string{"the largest is +0.138 on whole (95% interval +0.063 to +0.213)", "Not judged, on fewer than 10 common test points (our cut-off): points_b25 (6)."},
 		[]string{"the largest is -0.300"})
-	checkWords(t, "headline", s.Headline,
-		[]string{"is extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.063 to +0.213)"},
-		[]string{"-0.300 on points_b25"})
-	checkWords(t, "methods", methodsText(r), []string{"extent-sensitive (largest difference from base +0.138 on whole"}, []string{"-0.300 on points_b25"})
+	phrase := "extent-sensitive (largest judged difference from base +0.138 on whole, 95% interval +0.063 to +0.213; a larger one, -0.300 on points_b25, is not judged, too few common test points: 6, our cut-off 10)"
+	checkWords(t, "headline", s.Headline, []string{phrase}, []string{"(largest difference from base +0.138"})
+	checkWords(t, "methods", methodsText(r), []string{phrase}, []string{"(largest difference from base +0.138"})
+	// Without the larger difference the phrase is as before.
+	mv.Diffs = slices.DeleteFunc(slices.Clone(mv.Diffs), func(d ExtentDifference) bool { return d.Extent == "points_b25" })
+	mv.Largest = largestJudged(mv.Diffs)
+	checkWords(t, "phrase", verdictPhrase(mv), []string{"extent-sensitive (largest difference from base +0.138 on whole, 95% interval +0.063 to +0.213)"}, []string{"judged"})
 }
 
 // TestReferenceExtentVerdictWords: where the base extent could not be
