@@ -430,8 +430,8 @@ func studyRow(r *Results, id, model string) BatchRow {
 		for _, d := range mv.Diffs {
 			row.Judged = row.Judged || (d.Defined && !d.notJudged())
 		}
-		if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
-			d := mv.Diffs[mv.Largest]
+		if k := effectIndex(mv); k >= 0 {
+			d := mv.Diffs[k]
 			row.EffectDefined, row.EffectExtent = true, d.Extent
 			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
@@ -544,13 +544,26 @@ func baseNullComparison(r *Results, model string) *AboveNull {
 	return first
 }
 
+// effectIndex is the index in mv.Diffs of the difference from the base
+// extent of largest magnitude, judged or not, as the summary defines the
+// extent effect, or -1 when none is defined. It is not mv.Largest, which
+// for an extent-sensitive verdict is the largest judged difference (a
+// summary row gave -0.107 on points_50km as the effect of largest
+// magnitude beside -0.161 on points_25km, on 9 common test points).
+func effectIndex(mv ModelVerdict) int {
+	if mv.Largest < 0 || mv.Largest >= len(mv.Diffs) {
+		return -1
+	}
+	return largestDefined(mv.Diffs)
+}
+
 // batchVerdict turns one model verdict of the study's results r into a
 // summary row.
 func batchVerdict(r *Results, study string, mv ModelVerdict) BatchVerdict {
 	v := BatchVerdict{Study: study, Model: mv.Model, Metric: mv.Metric, Label: mv.Label, Tolerance: mv.Tolerance,
 		Verdict: mv.Verdict, BaseExtent: mv.Base}
-	if mv.Largest >= 0 && mv.Largest < len(mv.Diffs) {
-		d := mv.Diffs[mv.Largest]
+	if k := effectIndex(mv); k >= 0 {
+		d := mv.Diffs[k]
 		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
 	} else {
 		v.NotJudged = noDifferenceWhy(r, mv)
