@@ -47,7 +47,7 @@ func (s *BatchSummary) methodsSections() []textSection {
 	methods := s.runSentence(sw) + ExtentSensitiveDefinition + " " + s.toleranceSentence() +
 		" The extent effect of a model is the paired AUC difference from the base extent of largest magnitude, with its interval; " +
 		"each study's extents are built from its own region, points and buffers, so the extent effects of two studies compare different extents, " +
-		"and an extent of one name (region_50km, hull) differs between studies."
+		"and an extent of one name (for example region_50km or hull) differs between studies."
 	methods += " " + s.independenceSentence()
 	if c.NullPairs > 0 {
 		methods += " Where a study scored a null, each model's AUC minus the null's on the base extent was read against 0 with its 95% interval from the placements " +
