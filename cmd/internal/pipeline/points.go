@@ -1027,8 +1027,49 @@ func (s *Study) noTestPoint(r *pass.Raster) error {
 		} else {
 			msg += "; check that the points and the raster cover the same area" + pointsBeside(s.points, s.grid)
 		}
+		return errors.New(msg)
 	}
-	return errors.New(msg)
+	return errors.New(msg + testFates(s.points, s.models[0].Name))
+}
+
+// testFates says where the test records lie when none falls on a cell
+// with data while some point lies on a no-data cell (counts and lines, on
+// no-data cells of the first model and off the raster) and what to do:
+// the refusal said only that nothing could be scored.
+func testFates(pts []report.Point, model string) string {
+	var nodata, outside []string
+	n := 0
+	for _, p := range pts {
+		if p.Role != vocab.RoleTest {
+			continue
+		}
+		n++
+		switch p.Status {
+		case vocab.PointNoData:
+			nodata = append(nodata, strconv.Itoa(p.ID))
+		case vocab.PointOutsideRaster:
+			outside = append(outside, strconv.Itoa(p.ID))
+		}
+	}
+	var parts []string
+	if len(nodata) > 0 {
+		parts = append(parts, fmt.Sprintf("%d on no-data cells of %s (line%s %s)", len(nodata), model, report.Plural(len(nodata)), listLines(nodata)))
+	}
+	if len(outside) > 0 {
+		parts = append(parts, fmt.Sprintf("%d outside the raster (line%s %s)", len(outside), report.Plural(len(outside)), listLines(outside)))
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(": of the %d test record%s, %s; hold out records that lie on cells with data as role test, or, if those cells should hold data, check the raster's nodata value (gdalinfo)", n, report.Plural(n), strings.Join(parts, " and "))
+}
+
+// listLines joins up to ten line numbers with commas, counting the rest.
+func listLines(ids []string) string {
+	if len(ids) <= 10 {
+		return strings.Join(ids, ", ")
+	}
+	return strings.Join(ids[:10], ", ") + fmt.Sprintf(" and %d more", len(ids)-10)
 }
 
 // roleOnly returns the points of role r.

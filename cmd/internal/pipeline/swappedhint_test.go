@@ -22,7 +22,11 @@ import (
 // raster lie. Points truly in the box written swapped (longitude 30..50,
 // latitude -80) are still named as swapped. Test points off the raster
 // beside training points on it are told as such: it said every point lay
-// outside. Coordinates by hand.
+// outside. Test points on no-data cells of the raster (three at 70 N, one
+// off it at 80 S) beside training points on data: it said only "no test
+// point falls on a cell with data ...; nothing can be scored", with no
+// word of where they lay or what to do; now it counts them by fate,
+// names their lines and says what to do. Coordinates by hand.
 func TestNoTestPointSwappedHint(t *testing.T) {
 	extent.Register()
 	dir := t.TempDir()
@@ -75,15 +79,19 @@ func TestNoTestPointSwappedHint(t *testing.T) {
 		lat       float64
 		train     int // scored training points, on the raster
 		want, not string
+		nodata    int // the first nodata test points lie on no-data cells (at 70 N), not off the raster
 	}{
 		{"antarctic", []float64{-55, -40, -25, -10, 5, 30, 70, 85}, -75, 0,
-			"check that the points and the raster cover the same area (the points lie at latitudes -75 to -75, longitudes -55 to 85; the raster covers latitudes -60 to 90, longitudes -180 to 180)", "swapped"},
+			"check that the points and the raster cover the same area (the points lie at latitudes -75 to -75, longitudes -55 to 85; the raster covers latitudes -60 to 90, longitudes -180 to 180)", "swapped", 0},
 		{"swapped", []float64{30, 35, 40, 45, 50}, -80, 0,
-			"with longitude and latitude swapped, 5 of the 5 points would lie on cells with data", "cover the same area"},
+			"with longitude and latitude swapped, 5 of the 5 points would lie on cells with data", "cover the same area", 0},
 		// Training points on the raster, test points off it: it said
 		// "every point lies outside the raster".
 		{"test points only", []float64{30, 35}, -80, 3,
-			"every test point (2) lies outside the raster " + p + ", while 3 training point(s) lie on it; nothing can be scored; check the test records' coordinates, or hold out records that lie on the raster as role test (the points lie at latitudes -80 to -80, longitudes 30 to 35;", "every point"},
+			"every test point (2) lies outside the raster " + p + ", while 3 training point(s) lie on it; nothing can be scored; check the test records' coordinates, or hold out records that lie on the raster as role test (the points lie at latitudes -80 to -80, longitudes 30 to 35;", "every point", 0},
+		// Test points on no-data cells, one off the raster.
+		{"test points on no data", []float64{10, 20, 25, 30}, -80, 2,
+			"pts.csv: no test point falls on a cell with data of m (" + p + "); nothing can be scored: of the 4 test records, 3 on no-data cells of m (lines 2, 3, 4) and 1 outside the raster (line 5); hold out records that lie on cells with data as role test, or, if those cells should hold data, check the raster's nodata value (gdalinfo)", "every test point", 3},
 	} {
 		r, err := pass.Open(p)
 		if err != nil {
@@ -92,9 +100,14 @@ func TestNoTestPointSwappedHint(t *testing.T) {
 		s := &Study{o: &Options{}, log: &Log{}, res: &report.Results{}, grid: g, models: []namedPath{{Name: "m", Path: p}}}
 		s.o.Occurrences = "pts.csv"
 		for i, lon := range c.lons {
-			s.points = append(s.points, report.Point{ID: i + 2, Role: vocab.RoleTest, Lon: lon, Lat: c.lat, Status: vocab.PointOutsideRaster})
+			pt := report.Point{ID: i + 2, Role: vocab.RoleTest, Lon: lon, Lat: c.lat, Status: vocab.PointOutsideRaster}
+			if i < c.nodata {
+				pt.Lat, pt.Status = 70, vocab.PointNoData
+			}
+			s.points = append(s.points, pt)
 		}
-		s.res.PointCounts.OutsideRaster = len(c.lons)
+		s.res.PointCounts.OutsideRaster = len(c.lons) - c.nodata
+		s.res.PointCounts.NoData = c.nodata
 		for i := range c.train {
 			s.points = append(s.points, report.Point{ID: 100 + i, Role: vocab.RoleTrain, Lon: -80, Lat: 40, Status: vocab.PointScored})
 		}
