@@ -399,12 +399,16 @@ func checkPartial(f string) error {
 // givenList names the partial files given, for the refusal of missing
 // shards: the first five and how many more, so that a merge of a
 // thousand shards does not print a thousand paths.
-func givenList(files []string) string {
-	const shown = 5
-	if len(files) <= shown {
-		return strings.Join(files, ", ")
+func givenList(files []string) string { return firstOf(files, 5) }
+
+// firstOf joins the first k items with commas and counts the rest ("a, b
+// and 3 more"), so that a message naming what it found stays short
+// however many there are.
+func firstOf(items []string, k int) string {
+	if len(items) <= k {
+		return strings.Join(items, ", ")
 	}
-	return fmt.Sprintf("%s and %d more", strings.Join(files[:shown], ", "), len(files)-shown)
+	return fmt.Sprintf("%s and %d more", strings.Join(items[:k], ", "), len(items)-k)
 }
 
 // nameSettings adds to CheckShardSet's "differ in settings" which

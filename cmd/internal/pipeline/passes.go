@@ -135,10 +135,7 @@ func (s *Study) warnFewerCells(m report.Model, accs []*metrics.Accumulator) {
 		return
 	}
 	first := s.models[0].Name
-	named := strings.Join(ids[:min(len(ids), 5)], ", ")
-	if len(ids) > 5 {
-		named += fmt.Sprintf(" and %d more", len(ids)-5)
-	}
+	named := firstOf(ids, 5)
 	s.warn(fmt.Sprintf("%s has no data on cells where the first model (%s) has data, inside %d extent(s) (%s; up to %.1f%% of an extent's cells, on %s): there it is scored against its own cells with data only, a smaller background than %s's, so its scores on those extents and its differences from the other models there do not compare like with like; give it data on every cell %s has data on, or give first (--model) the model with the fewest cells with data",
 		modelWho(m), first, len(ids), named, 100*worst, worstID, first, first))
 }

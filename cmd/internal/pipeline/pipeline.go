@@ -185,10 +185,7 @@ func Prepare(ctx context.Context, o Options, io IO, d *outdir.Dir) (*Study, erro
 	if n := len(s.dir.Kept); n > 0 {
 		// Not a warning of the results (results.json does not depend on
 		// what lies beside --out): the log's note.
-		names := strings.Join(s.dir.Kept[:min(n, 3)], ", ")
-		if n > 3 {
-			names += fmt.Sprintf(" and %d more", n-3)
-		}
+		names := firstOf(s.dir.Kept, 3)
 		s.logf("note: left %d folder(s) named like staging folders of %s as they are (%s): they hold no record that a stopped areasweep run of this --out made them, or their run still works on this machine; remove them yourself if they are left-overs",
 			n, o.Out, names)
 	}

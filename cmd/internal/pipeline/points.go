@@ -1053,23 +1053,15 @@ func testFates(pts []report.Point, model string) string {
 	}
 	var parts []string
 	if len(nodata) > 0 {
-		parts = append(parts, fmt.Sprintf("%d on no-data cells of %s (line%s %s)", len(nodata), model, report.Plural(len(nodata)), listLines(nodata)))
+		parts = append(parts, fmt.Sprintf("%d on no-data cells of %s (line%s %s)", len(nodata), model, report.Plural(len(nodata)), firstOf(nodata, 10)))
 	}
 	if len(outside) > 0 {
-		parts = append(parts, fmt.Sprintf("%d outside the raster (line%s %s)", len(outside), report.Plural(len(outside)), listLines(outside)))
+		parts = append(parts, fmt.Sprintf("%d outside the raster (line%s %s)", len(outside), report.Plural(len(outside)), firstOf(outside, 10)))
 	}
 	if len(parts) == 0 {
 		return ""
 	}
 	return fmt.Sprintf(": of the %d test record%s, %s; hold out records that lie on cells with data as role test, or, if those cells should hold data, check the raster's nodata value (gdalinfo)", n, report.Plural(n), strings.Join(parts, " and "))
-}
-
-// listLines joins up to ten line numbers with commas, counting the rest.
-func listLines(ids []string) string {
-	if len(ids) <= 10 {
-		return strings.Join(ids, ", ")
-	}
-	return strings.Join(ids[:10], ", ") + fmt.Sprintf(" and %d more", len(ids)-10)
 }
 
 // roleOnly returns the points of role r.
