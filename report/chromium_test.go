@@ -414,17 +414,7 @@ func TestExplorerModelNamedLikeAProperty(t *testing.T) {
 	}
 	const model = "__proto__"
 	renamed := bytes.ReplaceAll(raw, []byte(`"good"`), []byte(`"`+model+`"`))
-	src := filepath.Join(t.TempDir(), "results.json")
-	if err := os.WriteFile(src, renamed, 0o644); err != nil {
-		t.Fatal(err)
-	}
-	r, err := Load(src)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := Analyze(r); err != nil {
-		t.Fatal(err)
-	}
+	r := analyzedJSON(t, renamed)
 	dir := t.TempDir()
 	if err := Write(dir, r); err != nil {
 		t.Fatal(err)

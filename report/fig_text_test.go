@@ -52,17 +52,7 @@ func TestROCLongNamesInside(t *testing.T) {
 	for _, m := range []string{"good", "truncated", "broad"} {
 		s = strings.ReplaceAll(s, `"`+m+`"`, `"`+m+`_model_with_a_long_descriptive_name"`)
 	}
-	p := filepath.Join(t.TempDir(), "results.json")
-	if err := os.WriteFile(p, []byte(s), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	r, err := Load(p)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := Analyze(r); err != nil {
-		t.Fatal(err)
-	}
+	r := analyzedJSON(t, []byte(s))
 	var f *figure
 	for _, g := range figures(r) {
 		if g.Name == rocFigureName {

@@ -34,6 +34,25 @@ func analyzedSample(t testing.TB) *Results {
 	return r
 }
 
+// analyzedJSON loads results.json text data (the sample's, edited by a
+// test) through a temporary file, as a report command would read it, and
+// analyzes it.
+func analyzedJSON(t *testing.T, data []byte) *Results {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), "results.json")
+	if err := os.WriteFile(p, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := Load(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
 // golden mirrors golden.json written by testdata/report/golden.py.
 type golden struct {
 	Spreads []struct {
