@@ -64,7 +64,7 @@ elsewhere is another build, and its shards are refused.`,
 	f := cmd.Flags()
 	f.Var(&onceString{p: &opts.Out, name: "out"}, "out", "output directory `DIR` (an existing non-empty one needs --force)")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
-	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars and no log lines on standard error")
+	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars, no log lines and no answer line on standard error")
 	f.IntVar(&opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", settings.MaxWorkers))
 	return cmd
 }
@@ -74,8 +74,12 @@ func mergeRun(o *MergeOptions) error {
 	setRunLog(log)
 	defer setRunLog(nil)
 	mo := pipeline.MergeOptions{Files: o.Files, Out: o.Out, Force: o.Force, Quiet: o.Quiet, Workers: o.Workers, Version: version, Build: buildID()}
-	if _, err := pipeline.Merge(context.Background(), mo, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log}); err != nil {
+	res, err := pipeline.Merge(context.Background(), mo, pipeline.IO{ErrOut: o.IO.ErrOut, Terminal: o.IO.Terminal, Log: log})
+	if err != nil {
 		return err
+	}
+	if !o.Quiet {
+		printAnswer(o.IO.ErrOut, res)
 	}
 	fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
 	return nil

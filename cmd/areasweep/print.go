@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"io"
 	"strings"
 	"text/tabwriter"
 
@@ -22,4 +23,15 @@ func extentsTable(ex []report.Extent) string {
 	}
 	tw.Flush()
 	return sb.String()
+}
+
+// printAnswer writes the run's headline (results.json's
+// sensitivity.headline, the report's first paragraph) on one line to w
+// after "answer: ", so that the answer is on the terminal without opening
+// the report; nothing when the results have no headline.
+func printAnswer(w io.Writer, res *report.Results) {
+	if res == nil || res.Sensitivity == nil || res.Sensitivity.Headline == "" {
+		return
+	}
+	fmt.Fprintf(w, "answer: %s\n", res.Sensitivity.Headline)
 }

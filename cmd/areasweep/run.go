@@ -98,6 +98,9 @@ func sweep(o *RunOptions, d *outdir.Dir) error {
 		fmt.Fprint(o.IO.Out, extentsTable(res.Extents))
 		fmt.Fprintf(o.IO.Out, "extents written to %s\n", filepath.Join(o.Out, "extents.gpkg"))
 	} else {
+		if !o.Quiet {
+			printAnswer(o.IO.ErrOut, res)
+		}
 		fmt.Fprintf(o.IO.Out, "report: %s\n", filepath.Join(o.Out, "report.html"))
 	}
 	return nil

@@ -75,7 +75,7 @@ func runShardsOf(t *testing.T, dir string, n int, args func(out string, extra ..
 func mergeShuffled(t *testing.T, outs []string, order []int, merged string) {
 	t.Helper()
 	n := len(outs)
-	args := []string{"merge", "--quiet", "--out", merged}
+	args := []string{"merge", "--out", merged}
 	for _, i := range order {
 		if i == 0 {
 			args = append(args, filepath.Join(outs[i], fmt.Sprintf("shard-1-of-%d.aspf", n)))
@@ -83,8 +83,14 @@ func mergeShuffled(t *testing.T, outs []string, order []int, merged string) {
 			args = append(args, outs[i])
 		}
 	}
-	if _, se, code := runBin(t, args...); code != 0 {
+	_, se, code := runBin(t, args...)
+	if code != 0 {
 		t.Fatalf("N=%d: merge: exit %d: %s", n, code, se)
+	}
+	// Its last line on standard error is the answer, as a run's is.
+	lines := strings.Split(strings.TrimSuffix(se, "\n"), "\n")
+	if res := loadResults(t, merged); res.Sensitivity != nil && lines[len(lines)-1] != "answer: "+res.Sensitivity.Headline {
+		t.Errorf("N=%d: the merge's last line on standard error is %q, want the headline after \"answer: \"", n, lines[len(lines)-1])
 	}
 }
 

@@ -112,3 +112,26 @@ func TestREADMEWalkthroughQuotes(t *testing.T) {
 		}
 	}
 }
+
+// TestRunPrintsAnswer: a run's last line on standard error is its answer,
+// results.json's headline after "answer: ", and standard output stays the
+// report's path alone (scripts read it); --quiet drops the answer with the
+// log lines (TestDemo runs the demo with --quiet).
+func TestRunPrintsAnswer(t *testing.T) {
+	w := walkthroughDemo(t)
+	res := loadResults(t, w.dir)
+	if res.Sensitivity == nil || res.Sensitivity.Headline == "" {
+		t.Fatal("the demo's results.json has no headline")
+	}
+	lines := strings.Split(strings.TrimSuffix(w.stderr, "\n"), "\n")
+	if last := lines[len(lines)-1]; last != "answer: "+res.Sensitivity.Headline {
+		t.Errorf("the demo's last line on standard error is %q, want the headline after \"answer: \"", last)
+	}
+	if want := "report: " + filepath.Join(w.dir, "report.html") + "\n"; w.stdout != want {
+		t.Errorf("standard output is %q, want %q", w.stdout, want)
+	}
+	out := filepath.Join(t.TempDir(), "quiet")
+	if _, se, code := runBin(t, "demo", "--out", out, "--quiet"); code != 0 || strings.Contains(se, "answer:") {
+		t.Errorf("demo --quiet: exit %d, standard error %q, want no answer line", code, se)
+	}
+}

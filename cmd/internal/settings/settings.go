@@ -237,7 +237,7 @@ var Table = []Setting{
 		Usage: "replace areasweep's files in an existing output directory (other files are kept)",
 		Field: func(v *Values) any { return &v.Force }},
 	{Name: "quiet", Kind: Bool,
-		Usage: "no progress bars and no log lines on standard error",
+		Usage: "no progress bars, no log lines and no answer line on standard error",
 		Field: func(v *Values) any { return &v.Quiet }},
 	{Name: "workers", Kind: Int, Arg: "N", Scoring: true, Unset: "all cores",
 		Usage: fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores); results do not depend on it", MaxWorkers),
