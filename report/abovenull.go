@@ -154,7 +154,7 @@ func pointOnlyClause(k MetricKind, label string, g *NullGap) string {
 	why := fmt.Sprintf("fewer than %d common test points (our cut-off)", MinPairedPoints)
 	switch {
 	case k == MetricPartialROC:
-		why = "no readable bootstrap of its own on these test points"
+		why = "the published bootstrap's is no calibrated test against 1"
 	case g.CommonPoints >= MinPairedPoints:
 		why = "no placements of its own on these test points"
 	}
@@ -744,10 +744,9 @@ func aucInterval(auc, se float64, n int) (lo, hi float64, ok bool) {
 // against a random ranking (k's level) and fills g.ModelVsRandom,
 // g.ModelLow and g.ModelHigh. AUC: the interval of aucInterval from the
 // model's placements on the test points the null also scores. Partial ROC
-// ratio at E (key): the published half-size bootstrap's percentile
-// interval, when it was drawn on exactly the common test points and is
-// readable (BootstrapReadable). Without an interval the point estimate
-// alone decides (VsRandomAtOrBelow or VsRandomPointAbove).
+// ratio at E (key): no interval (modelInterval), so the point estimate
+// alone decides (VsRandomAtOrBelow or VsRandomPointAbove), and the
+// sentence says so.
 func (a *analysis) setModelVsRandom(k MetricKind, key, model, null string, g *NullGap) {
 	lvl, ok := randomLevel(k)
 	if !ok || !g.Defined {
@@ -785,14 +784,11 @@ func (a *analysis) modelInterval(k MetricKind, key, model, null string, g *NullG
 		}
 		return aucInterval(g.ModelValue, metrics.PlacementSE(v, metrics.Mean(v)), len(v))
 	case MetricPartialROC:
-		if sc.TestPoints != g.CommonPoints {
-			return 0, 0, false // the bootstrap was drawn on other test points
-		}
-		for _, pr := range sc.PartialROC {
-			if MetricKeyPartialROC(pr.E) == key && pr.Defined && BootstrapReadable(pr) {
-				return pr.CILow, pr.CIHigh, true
-			}
-		}
+		// None: the only interval of a model's own ratio is the published
+		// half-size bootstrap's, which is no calibrated test against 1
+		// (PublishedPSize: on a model with no skill it lies wholly above
+		// 1 far more often than 2.5% of the time).
+		return 0, 0, false
 	}
 	return 0, 0, false
 }

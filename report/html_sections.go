@@ -447,6 +447,8 @@ type scoresView struct {
 	ResamplePercent string
 	// BootstrapNote is bootstrapNote of the settings.
 	BootstrapNote string
+	// PublishedPSize is the constant of that name.
+	PublishedPSize string
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
 	NullNote string
@@ -485,7 +487,7 @@ func nullThresholdNote(r *Results) string {
 func scoresSection(r *Results) scoresView {
 	st := r.Settings
 	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
-		BootstrapNote: bootstrapNote(st)}
+		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize}
 	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell

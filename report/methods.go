@@ -203,7 +203,7 @@ func methodsScores(b *strings.Builder, r *Results) {
 		case fewB:
 			fmt.Fprintf(b, "; neither is given where fewer than %d resamples formed a ratio, our cut-off", MinPercentileResamples)
 		}
-		b.WriteString(")")
+		fmt.Fprintf(b, "); that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in %s in our simulation), so no statement of skill rests on them", PublishedPSize)
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {

@@ -537,6 +537,14 @@ const MetricKeyBoyce = "boyce"
 // ranking or reading rests on it.
 const BoyceCoverage = "34% to 88%"
 
+// PublishedPSize is how often the published bootstrap's P of the partial
+// ROC ratio (Peterson et al. 2008) falls below 0.05 on a model with no
+// skill, at E = 0.05, as metrics' TestPublishedBootstrapSize measures it
+// (400 simulated studies per size, B = 500, fraction 0.5): far above the
+// 5% a calibrated test allows, so no statement of skill rests on the
+// published P or interval (README "The published partial ROC bootstrap").
+const PublishedPSize = "42% of studies of 40 test records and 19% of 90, at E = 0.05"
+
 // Formed is the number of paired resamples that formed the difference
 // (Resamples - NotFormed).
 func (p *Paired) Formed() int { return p.Resamples - p.NotFormed }

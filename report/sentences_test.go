@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"os"
+	"path/filepath"
 	"regexp"
 	"slices"
 	"strconv"
@@ -2158,12 +2160,15 @@ func TestAboveNullSkillNotShown(t *testing.T) {
 }
 
 // TestNoSkillPartialROCAndCounts: the model's own partial ROC ratio is
-// read against 1 by its published bootstrap's interval when that was drawn
-// on the common test points and is readable, else by the point estimate,
-// which the sentence then says; the qualifier names the ratio without
-// "its own the" (written before); and the headline's counts, used past 6
-// pairs, say how many of the pairs above show no skill. Intervals and
-// counts are hand-made.
+// read against 1 by its point estimate alone, which the sentence says,
+// even where its published bootstrap's interval was drawn on the common
+// test points and is readable: that interval is no calibrated test
+// against 1 (PublishedPSize, metrics' TestPublishedBootstrapSize; it was
+// used until 2026-12-05, and an interval reaching 1 read "not shown
+// above"); a results file that holds such a reading still renders it,
+// naming the ratio without "its own the" (written before); and the
+// headline's counts, used past 6 pairs, say how many of the pairs above
+// show no skill. Intervals and counts are hand-made.
 func TestNoSkillPartialROCAndCounts(t *testing.T) {
 	r := &Results{Models: []Model{{Name: "m"}, {Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance}}}
 	for _, name := range []string{"m", DistanceNullName} {
@@ -2179,7 +2184,7 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 		value  float64
 		want   string
 	}{
-		{"bootstrap reaches 1", 40, 500, 1.05, VsRandomNotShown},
+		{"bootstrap reaches 1", 40, 500, 1.05, VsRandomPointAbove},
 		{"drawn on other test points", 39, 500, 1.05, VsRandomPointAbove},
 		{"bootstrap not readable", 40, 10, 1.05, VsRandomPointAbove},
 		{"at or below 1", 40, 500, 0.95, VsRandomAtOrBelow},
@@ -2192,11 +2197,18 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 			t.Errorf("%s: %q, want %q", c.name, g.ModelVsRandom, c.want)
 		}
 	}
+	// A readable bootstrap wholly above 1 (read "above" before) is not
+	// read either.
+	r.Scores[0].PartialROC[0].Iterations, r.Scores[0].PartialROC[0].CILow = 500, 1.01
+	g := NullGap{Extent: "base", Defined: true, CommonPoints: 40, ModelValue: 1.05, Reading: ReadingAbove}
+	if a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g); g.ModelVsRandom != VsRandomPointAbove || g.ModelLow != 0 || g.ModelHigh != 0 {
+		t.Errorf("bootstrap wholly above 1: %q (%g to %g), want %q and no interval", g.ModelVsRandom, g.ModelLow, g.ModelHigh, VsRandomPointAbove)
+	}
 	m := MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}
 	an := AboveNull{Metric: key, Model: "m", Null: DistanceNullName, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
 		Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, ModelValue: 1.05, NullValue: 0.9, Diff: 0.15, Low: 0.05, High: 0.25, Reading: ReadingAbove, ModelVsRandom: VsRandomPointAbove}}}
 	checkWords(t, "point estimate", aboveNullSentence(r, m, &an),
-		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: no readable bootstrap of its own on these test points)."}, []string{"no sign of skill"})
+		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: the published bootstrap's is no calibrated test against 1)."}, []string{"no sign of skill"})
 	an.Gaps[0].ModelVsRandom, an.Gaps[0].ModelLow, an.Gaps[0].ModelHigh = VsRandomNotShown, 0.98, 1.2
 	checkWords(t, "not shown", aboveNullSentence(r, m, &an),
 		[]string{"; but its own partial ROC ratio at E = 0.05, 1.050, is not above 1, that of a random ranking, beyond noise (its 95% interval 0.980 to 1.200 reaches it)"}, []string{"its own the"})
@@ -2253,4 +2265,23 @@ func TestMethodsLeftOutCounts(t *testing.T) {
 			checkWords(t, "methods", methodsText(r), c.want, c.notWant)
 		})
 	}
+}
+
+// TestPublishedPCaution: the methods text and the report's partial ROC
+// table, which give the published bootstrap's interval and P, say that
+// they are no calibrated test against 1, with the size measured by
+// metrics' TestPublishedBootstrapSize (PublishedPSize), so that a reader
+// does not take the published P for evidence of skill.
+func TestPublishedPCaution(t *testing.T) {
+	r := analyzedSample(t)
+	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)"}, nil)
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "report page", string(page), []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
 }

@@ -219,6 +219,11 @@
 #     on the common test points, which decides the no-skill qualifier;
 #     the demo's models are above random on every extent, so no sentence
 #     changed; scores.csv unchanged).
+#   - rewritten on 2026-12-05 (a model's own partial ROC ratio is read
+#     against 1 by its point estimate alone, no longer by the published
+#     bootstrap's interval, which is no calibrated test: each partial ROC
+#     gap's model_vs_random becomes above_point_estimate and loses
+#     model_ci_low/high; scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
