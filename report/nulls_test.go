@@ -51,16 +51,9 @@ func TestNullsLeftOutOfAnalysis(t *testing.T) {
 	if !reflect.DeepEqual(plain.Sensitivity, r.Sensitivity) {
 		t.Error("adding a null changed the sensitivity analysis")
 	}
-	dir := t.TempDir()
-	if err := Write(dir, r); err != nil {
-		t.Fatal(err)
-	}
-	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	dir, page := writtenPage(t, r)
 	for _, want := range []string{DistanceNullName + " (distance-only null)", "Spatial sorting bias", "tbl-sorting-bias"} {
-		if !strings.Contains(string(page), want) {
+		if !strings.Contains(page, want) {
 			t.Errorf("report.html lacks %q", want)
 		}
 	}

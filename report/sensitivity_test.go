@@ -34,6 +34,21 @@ func analyzedSample(t testing.TB) *Results {
 	return r
 }
 
+// writtenPage writes r's report into a temporary folder and returns the
+// folder and its report.html.
+func writtenPage(t *testing.T, r *Results) (dir, page string) {
+	t.Helper()
+	dir = t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return dir, string(b)
+}
+
 // analyzedJSON loads results.json text data (the sample's, edited by a
 // test) through a temporary file, as a report command would read it, and
 // analyzes it.

@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"html/template"
 	"math"
-	"os"
-	"path/filepath"
 	"regexp"
 	"slices"
 	"strconv"
@@ -2275,13 +2273,6 @@ func TestMethodsLeftOutCounts(t *testing.T) {
 func TestPublishedPCaution(t *testing.T) {
 	r := analyzedSample(t)
 	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)"}, nil)
-	dir := t.TempDir()
-	if err := Write(dir, r); err != nil {
-		t.Fatal(err)
-	}
-	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	checkWords(t, "report page", string(page), []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
+	_, page := writtenPage(t, r)
+	checkWords(t, "report page", page, []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
 }
