@@ -96,6 +96,13 @@ type PartialROC struct {
 	XE float64
 	// ModelArea and NullArea are the full-set areas whose ratio is Ratio.
 	ModelArea, NullArea float64
+	// PRandom is the Monte Carlo p-value of Ratio against the ratios of
+	// test points drawn at random over the extent's area (areaRandom),
+	// from RandomFormed draws that formed a ratio; 0 when not computed,
+	// with PRandomNote saying why (a p-value is never 0).
+	PRandom      float64
+	RandomFormed int
+	PRandomNote  string
 }
 
 // ResampleSize is the number of test presences each resample of the

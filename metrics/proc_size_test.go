@@ -60,7 +60,7 @@ func TestPublishedBootstrapSize(t *testing.T) {
 	if testing.Short() {
 		reps = 100
 	}
-	type rate struct{ n, pLow, ciAbove, formed int }
+	type rate struct{ n, pLow, ciAbove, randLow, randN, formed int }
 	ns := []int{20, 40, 90, 300}
 	es := []float64{0.05, 0.1}
 	rates := make([][]rate, len(ns))
@@ -90,18 +90,40 @@ func TestPublishedBootstrapSize(t *testing.T) {
 				if pr.CILow > 1 {
 					r.ciAbove++
 				}
+				if pr.Formed {
+					r.formed++
+				}
+				if pr.PRandom > 0 {
+					r.randN++
+					if pr.PRandom < 0.05 {
+						r.randLow++
+					}
+				}
 			}
 		}
 	}
 	var tab strings.Builder
-	fmt.Fprintf(&tab, "published half-size bootstrap on a model with no skill (%d studies per n):\n  n    E     r     P<0.05  2.5th pct>1\n", reps)
+	fmt.Fprintf(&tab, "published half-size bootstrap and area-random p on a model with no skill (%d studies per n):\n  n    E     r     P<0.05  2.5th pct>1  p_random<0.05\n", reps)
 	for a, n := range ns {
 		for b, e := range es {
 			r := rates[a][b]
 			if r.n == 0 {
 				t.Fatalf("n = %d, E = %g: no bootstrap formed", n, e)
 			}
-			fmt.Fprintf(&tab, "  %-4d %-5g %-5d %.3f   %.3f\n", n, e, ResampleSize(0.5, n), float64(r.pLow)/float64(r.n), float64(r.ciAbove)/float64(r.n))
+			fmt.Fprintf(&tab, "  %-4d %-5g %-5d %.3f   %.3f        %.3f\n", n, e, ResampleSize(0.5, n), float64(r.pLow)/float64(r.n), float64(r.ciAbove)/float64(r.n), float64(r.randLow)/float64(r.randN))
+			// The area-random p (areaRandom) is a test at its level: on
+			// a model with no skill it falls below 0.05 in about 5% of
+			// studies (band our choice: 2 to 9%, about three binomial
+			// SEs of 400 studies; wider with -short).
+			lo, hi := 0.02, 0.09
+			if testing.Short() {
+				lo, hi = 0.0, 0.13
+			}
+			if r.randN < r.formed {
+				t.Errorf("n = %d, E = %g: p_random computed in %d of %d studies with a formed ratio, want all (a continuous model)", n, e, r.randN, r.formed)
+			} else if got := float64(r.randLow) / float64(r.randN); got < lo || got > hi {
+				t.Errorf("n = %d, E = %g: p_random < 0.05 in %.3f of studies with no skill, want %g to %g", n, e, got, lo, hi)
+			}
 		}
 	}
 	t.Log(tab.String())

@@ -193,6 +193,7 @@ func score(a *Accumulator, train, test []float64, s Settings) (Scores, *scored, 
 	sc.AUCUnweightedVarDeLong = cum.delongVariance(tp, sc.PlacementsUnweighted, sc.AUCUnweighted)
 
 	sc.PartialROC = partialROC(tp, s)
+	areaRandom(a, cum, tp.n, s, sc.PartialROC)
 
 	thTrain, thIdx := train, trainIdx
 	if s.ThresholdTrain != nil {

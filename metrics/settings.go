@@ -51,6 +51,11 @@ type Settings struct {
 	BoyceWidth float64
 	// BoyceSteps is the number of window positions, >= 1 (0 means 100).
 	BoyceSteps int
+	// ModelMin and ModelMinArea are the model's smallest value over its
+	// whole raster and the area (units) of the cells at it; ModelMinArea 0
+	// when not known. PartialROC.PRandom reads them (newAreaModel).
+	ModelMin     float64
+	ModelMinArea int64
 }
 
 // WithDefaults returns s with every zero-valued field set to its default.

@@ -88,11 +88,14 @@ type NullGap struct {
 	// ModelVsRandom reads ModelValue, the model's own score on the common
 	// points, against a random ranking (VsRandomAbove, VsRandomNotShown,
 	// VsRandomAtOrBelow, VsRandomPointAbove; setModelVsRandom); ModelLow
-	// and ModelHigh are its 95% interval, 0 without one. Absent for an
-	// undefined gap.
+	// and ModelHigh are its 95% interval, 0 without one (AUC); ModelP is
+	// the partial ROC ratio's one-sided area-random p-value
+	// (PartialROC.PRandom) that read it, absent without one. Absent for
+	// an undefined gap.
 	ModelVsRandom string  `json:"model_vs_random,omitempty"`
 	ModelLow      float64 `json:"model_ci_low"`
 	ModelHigh     float64 `json:"model_ci_high"`
+	ModelP        float64 `json:"model_p_random,omitempty"`
 	// nFormed is the number of resamples that formed the difference.
 	nFormed int
 }
@@ -134,6 +137,10 @@ func noSkillClause(k MetricKind, label string, g *NullGap) string {
 	lvl, _ := randomLevel(k)
 	label = strings.TrimPrefix(label, "the ") // "its own the partial ROC ratio" was written
 	if g.vsRandom(k) == VsRandomNotShown {
+		if g.ModelP > 0 {
+			return fmt.Sprintf("its own %s, %s, is not above %s, that of a random ranking, beyond noise (one-sided p = %s against test points drawn at random over the extent, our cut-off 0.025), so being above the null is no sign of skill",
+				label, f3(g.ModelValue), fmtG(lvl), fmtP(g.ModelP))
+		}
 		return fmt.Sprintf("its own %s, %s, is not above %s, that of a random ranking, beyond noise (its 95%% interval %s to %s reaches it), so being above the null is no sign of skill",
 			label, f3(g.ModelValue), fmtG(lvl), f3(g.ModelLow), f3(g.ModelHigh))
 	}
@@ -154,7 +161,7 @@ func pointOnlyClause(k MetricKind, label string, g *NullGap) string {
 	why := fmt.Sprintf("fewer than %d common test points (our cut-off)", MinPairedPoints)
 	switch {
 	case k == MetricPartialROC:
-		why = "the published bootstrap's is no calibrated test against 1"
+		why = "no area-random p on these test points"
 	case g.CommonPoints >= MinPairedPoints:
 		why = "no placements of its own on these test points"
 	}
@@ -742,15 +749,29 @@ func aucInterval(auc, se float64, n int) (lo, hi float64, ok bool) {
 
 // setModelVsRandom reads the model's own score on g's common test points
 // against a random ranking (k's level) and fills g.ModelVsRandom,
-// g.ModelLow and g.ModelHigh. AUC: the interval of aucInterval from the
-// model's placements on the test points the null also scores. Partial ROC
-// ratio at E (key): no interval (modelInterval), so the point estimate
-// alone decides (VsRandomAtOrBelow or VsRandomPointAbove), and the
-// sentence says so.
+// g.ModelLow and g.ModelHigh (or g.ModelP). AUC: the interval of
+// aucInterval from the model's placements on the test points the null
+// also scores. Partial ROC ratio at E (key): its area-random p-value
+// (PartialROC.PRandom), when computed on exactly the common test points:
+// above below 0.025 (one-sided, as the lower end of a 95% interval; our
+// cut-off), else not shown above; never the published bootstrap's
+// interval (modelInterval). Without either the point estimate alone
+// decides (VsRandomAtOrBelow or VsRandomPointAbove), and the sentence
+// says so.
 func (a *analysis) setModelVsRandom(k MetricKind, key, model, null string, g *NullGap) {
 	lvl, ok := randomLevel(k)
 	if !ok || !g.Defined {
 		return
+	}
+	if k == MetricPartialROC && g.ModelValue > lvl {
+		if p := a.modelPRandom(key, model, null, g); p > 0 {
+			g.ModelP = p
+			g.ModelVsRandom = VsRandomNotShown
+			if p < randomPCutoff {
+				g.ModelVsRandom = VsRandomAbove
+			}
+			return
+		}
 	}
 	lo, hi, ok := a.modelInterval(k, key, model, null, g)
 	switch {
@@ -791,6 +812,27 @@ func (a *analysis) modelInterval(k MetricKind, key, model, null string, g *NullG
 		return 0, 0, false
 	}
 	return 0, 0, false
+}
+
+// randomPCutoff is the area-random p-value below which a model's own
+// partial ROC ratio reads above random: one-sided 0.025, as the lower end
+// of the AUC's 95% interval reads it (our choice).
+const randomPCutoff = 0.025
+
+// modelPRandom is the area-random p-value of the model's own partial ROC
+// ratio at key on g's extent when it was computed on exactly g's common
+// test points, else 0.
+func (a *analysis) modelPRandom(key, model, null string, g *NullGap) float64 {
+	sc, ns := findScore(a.r, model, g.Extent), findScore(a.r, null, g.Extent)
+	if sc == nil || ns == nil || sc.TestPoints != g.CommonPoints {
+		return 0
+	}
+	for _, pr := range sc.PartialROC {
+		if MetricKeyPartialROC(pr.E) == key && pr.Defined {
+			return pr.PRandom
+		}
+	}
+	return 0
 }
 
 // commonPlacements are the placements of sc's test points that ns (the

@@ -36,7 +36,11 @@ func (sc *Score) SetScores(out metrics.Scores, unitsPerKm2 float64) {
 		sc.PartialROC = append(sc.PartialROC, PartialROC{E: p.E, Defined: p.Formed, Reason: p.Reason, XE: p.XE,
 			TiedAtCrossing: p.TiedAtCrossing, DiscreteDefined: p.DiscreteFormed, DiscreteXE: p.DiscreteXE, DiscreteRatio: p.DiscreteRatio,
 			Ratio: p.Ratio, RatioMean: p.RatioMean, RatioSD: p.RatioSD,
-			CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed, ResampleSize: p.ResampleSize})
+			CILow: p.CILow, CIHigh: p.CIHigh, PValue: p.PValue, Iterations: p.Iterations, NotFormed: p.NotFormed, ResampleSize: p.ResampleSize,
+			PRandom: p.PRandom, RandomFormed: p.RandomFormed})
+		if p.Formed {
+			sc.PartialROC[len(sc.PartialROC)-1].PRandomNote = p.PRandomNote
+		}
 	}
 	for _, t := range out.Thresholds {
 		sc.Thresholds = append(sc.Thresholds, Threshold{Name: t.Name, Value: t.Value, Omission: t.Omission,

@@ -511,7 +511,7 @@ func scoresSection(r *Results) scoresView {
 	}
 	v.Main = table("tbl-scores", head, rows)
 
-	head = []string{"model", "extent", "E", "partial ROC ratio, full sample", "partial ROC ratio, resample mean", "2.5th to 97.5th percentile of resamples", "share of resamples at or below 1 (P)", "resamples formed"}
+	head = []string{"model", "extent", "E", "partial ROC ratio, full sample", "partial ROC ratio, resample mean", "2.5th to 97.5th percentile of resamples", "share of resamples at or below 1 (P)", "resamples formed", "p, test records at random over the area"}
 	rows = nil
 	for _, sc := range r.Scores {
 		if !sc.Scored {
@@ -537,6 +537,14 @@ func scoresSection(r *Results) scoresView {
 					cell{text: fmtPResampled(pr.PValue, pr.Iterations-pr.NotFormed), num: pr.PValue, isN: true, cls: "n"})
 			}
 			row = append(row, cell{text: fmt.Sprintf("%d of %d", pr.Iterations-pr.NotFormed, pr.Iterations), num: float64(pr.Iterations - pr.NotFormed), isN: true, cls: "n"})
+			switch {
+			case pr.PRandom > 0:
+				row = append(row, cell{text: fmtP(pr.PRandom), num: pr.PRandom, isN: true, cls: "n"})
+			case pr.PRandomNote != "":
+				row = append(row, cell{text: "not computed: " + pr.PRandomNote})
+			default:
+				row = append(row, dash)
+			}
 			rows = append(rows, row)
 		}
 	}

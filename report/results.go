@@ -359,6 +359,15 @@ type PartialROC struct {
 	// ResampleSize is the number of test points each resample draws
 	// (with replacement): max(1, round(fraction x test points)).
 	ResampleSize int `json:"resample_size"`
+	// PRandom is the one-sided Monte Carlo p-value of the full-sample
+	// ratio against the ratios of as many test points drawn at random
+	// over the extent's area (metrics.PartialROC.PRandom), from
+	// RandomFormed draws that formed a ratio; absent where it is not
+	// computed, PRandomNote saying why (absent too on an undefined ratio
+	// and in results files written before 2026-12-05).
+	PRandom      float64 `json:"p_random,omitempty"`
+	RandomFormed int     `json:"random_draws_formed,omitempty"`
+	PRandomNote  string  `json:"p_random_note,omitempty"`
 }
 
 // Threshold is a threshold-based omission test.

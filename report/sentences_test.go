@@ -2158,55 +2158,58 @@ func TestAboveNullSkillNotShown(t *testing.T) {
 }
 
 // TestNoSkillPartialROCAndCounts: the model's own partial ROC ratio is
-// read against 1 by its point estimate alone, which the sentence says,
-// even where its published bootstrap's interval was drawn on the common
-// test points and is readable: that interval is no calibrated test
-// against 1 (PublishedPSize, metrics' TestPublishedBootstrapSize; it was
-// used until 2026-12-05, and an interval reaching 1 read "not shown
-// above"); a results file that holds such a reading still renders it,
-// naming the ratio without "its own the" (written before); and the
-// headline's counts, used past 6 pairs, say how many of the pairs above
-// show no skill. Intervals and counts are hand-made.
+// read against 1 by its area-random p-value (PartialROC.PRandom) when that
+// was computed on the common test points (above below 0.025, else not
+// shown above), else by the point estimate, which the sentence then says;
+// never by its published bootstrap's interval, which is no calibrated
+// test against 1 (PublishedPSize, metrics' TestPublishedBootstrapSize; it
+// was used until 2026-12-05); a results file that holds an interval
+// reading still renders it, naming the ratio without "its own the"
+// (written before); and the headline's counts, used past 6 pairs, say
+// how many of the pairs above show no skill. p-values, intervals and
+// counts are hand-made.
 func TestNoSkillPartialROCAndCounts(t *testing.T) {
 	r := &Results{Models: []Model{{Name: "m"}, {Name: DistanceNullName, Role: RoleNull, NullKind: NullDistance}}}
 	for _, name := range []string{"m", DistanceNullName} {
 		r.Scores = append(r.Scores, Score{Model: name, Extent: "base", Scored: true, TestPoints: 40, TestPointIDs: make([]int, 40),
-			PartialROC: []PartialROC{{E: 0.05, Defined: true, Ratio: 1.05, CILow: 0.98, CIHigh: 1.2, Iterations: 500, ResampleSize: 20}}})
+			PartialROC: []PartialROC{{E: 0.05, Defined: true, Ratio: 1.05, CILow: 1.01, CIHigh: 1.2, Iterations: 500, ResampleSize: 20}}})
 	}
 	a := newAnalysis(r)
 	key := MetricKeyPartialROC(0.05)
 	cases := []struct {
-		name   string
-		common int
-		iters  int
-		value  float64
-		want   string
+		name    string
+		common  int
+		pRandom float64
+		value   float64
+		want    string
 	}{
-		{"bootstrap reaches 1", 40, 500, 1.05, VsRandomPointAbove},
-		{"drawn on other test points", 39, 500, 1.05, VsRandomPointAbove},
-		{"bootstrap not readable", 40, 10, 1.05, VsRandomPointAbove},
-		{"at or below 1", 40, 500, 0.95, VsRandomAtOrBelow},
+		{"p below 0.025", 40, 0.01, 1.05, VsRandomAbove},
+		{"p of 0.3", 40, 0.3, 1.05, VsRandomNotShown},
+		{"p computed on other test points", 39, 0.01, 1.05, VsRandomPointAbove},
+		{"no p (a bootstrap wholly above 1 is not read)", 40, 0, 1.05, VsRandomPointAbove},
+		{"at or below 1", 40, 0.01, 0.95, VsRandomAtOrBelow},
 	}
 	for _, c := range cases {
-		r.Scores[0].PartialROC[0].Iterations = c.iters
+		r.Scores[0].PartialROC[0].PRandom = c.pRandom
 		g := NullGap{Extent: "base", Defined: true, CommonPoints: c.common, ModelValue: c.value, Reading: ReadingAbove}
 		a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g)
-		if g.ModelVsRandom != c.want {
-			t.Errorf("%s: %q, want %q", c.name, g.ModelVsRandom, c.want)
+		wantP := 0.0
+		if c.want == VsRandomAbove || c.want == VsRandomNotShown {
+			wantP = c.pRandom
 		}
-	}
-	// A readable bootstrap wholly above 1 (read "above" before) is not
-	// read either.
-	r.Scores[0].PartialROC[0].Iterations, r.Scores[0].PartialROC[0].CILow = 500, 1.01
-	g := NullGap{Extent: "base", Defined: true, CommonPoints: 40, ModelValue: 1.05, Reading: ReadingAbove}
-	if a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g); g.ModelVsRandom != VsRandomPointAbove || g.ModelLow != 0 || g.ModelHigh != 0 {
-		t.Errorf("bootstrap wholly above 1: %q (%g to %g), want %q and no interval", g.ModelVsRandom, g.ModelLow, g.ModelHigh, VsRandomPointAbove)
+		if g.ModelVsRandom != c.want || g.ModelP != wantP || g.ModelLow != 0 || g.ModelHigh != 0 {
+			t.Errorf("%s: %q (p %g, interval %g to %g), want %q (p %g, no interval)", c.name, g.ModelVsRandom, g.ModelP, g.ModelLow, g.ModelHigh, c.want, wantP)
+		}
 	}
 	m := MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}
 	an := AboveNull{Metric: key, Model: "m", Null: DistanceNullName, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
 		Gaps: []NullGap{{Extent: "base", Defined: true, CommonPoints: 39, ModelValue: 1.05, NullValue: 0.9, Diff: 0.15, Low: 0.05, High: 0.25, Reading: ReadingAbove, ModelVsRandom: VsRandomPointAbove}}}
 	checkWords(t, "point estimate", aboveNullSentence(r, m, &an),
-		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: the published bootstrap's is no calibrated test against 1)."}, []string{"no sign of skill"})
+		[]string{"; its own partial ROC ratio at E = 0.05, 1.050, is above 1, that of a random ranking, on the point estimate only (no interval: no area-random p on these test points)."}, []string{"no sign of skill"})
+	an.Gaps[0].ModelVsRandom, an.Gaps[0].ModelP = VsRandomNotShown, 0.3
+	checkWords(t, "not shown by p", aboveNullSentence(r, m, &an),
+		[]string{"; but its own partial ROC ratio at E = 0.05, 1.050, is not above 1, that of a random ranking, beyond noise (one-sided p = 0.300 against test points drawn at random over the extent, our cut-off 0.025)"}, nil)
+	an.Gaps[0].ModelP = 0
 	an.Gaps[0].ModelVsRandom, an.Gaps[0].ModelLow, an.Gaps[0].ModelHigh = VsRandomNotShown, 0.98, 1.2
 	checkWords(t, "not shown", aboveNullSentence(r, m, &an),
 		[]string{"; but its own partial ROC ratio at E = 0.05, 1.050, is not above 1, that of a random ranking, beyond noise (its 95% interval 0.980 to 1.200 reaches it)"}, []string{"its own the"})
@@ -2269,10 +2272,15 @@ func TestMethodsLeftOutCounts(t *testing.T) {
 // table, which give the published bootstrap's interval and P, say that
 // they are no calibrated test against 1, with the size measured by
 // metrics' TestPublishedBootstrapSize (PublishedPSize), so that a reader
-// does not take the published P for evidence of skill.
+// does not take the published P for evidence of skill, and name the
+// area-random p as the test; the table gives that p, or says why not.
 func TestPublishedPCaution(t *testing.T) {
 	r := analyzedSample(t)
-	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)",
+		"as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (200 draws; Davison & Hinkley 1997)"}, nil)
+	r.Scores[0].PartialROC[0].PRandom = 0.0123
+	r.Scores[1].PartialROC[0].PRandomNote = "a reason"
 	_, page := writtenPage(t, r)
+	checkWords(t, "table", page, []string{">0.012<", "not computed: a reason"}, nil)
 	checkWords(t, "report page", page, []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
 }

@@ -584,6 +584,10 @@ func (v *validator) score(at string, s Score) {
 		v.between(pa+".ci_low", p.CILow, 0, maxPartialRatio)
 		v.between(pa+".ci_high", p.CIHigh, 0, maxPartialRatio)
 		v.unit(pa+".p_value", p.PValue)
+		v.unit(pa+".p_random", p.PRandom)
+		if p.RandomFormed < 0 || (p.PRandom > 0 && float64(p.RandomFormed+1)*p.PRandom < 1-1e-9) {
+			v.fail(pa, "p_random %g from %d formed draws is not a Monte Carlo p-value (at least 1/(draws+1))", p.PRandom, p.RandomFormed)
+		}
 		if p.Iterations < 0 || p.NotFormed < 0 || p.NotFormed > p.Iterations {
 			v.fail(pa, "iterations %d and iterations_not_formed %d do not fit", p.Iterations, p.NotFormed)
 		}

@@ -224,6 +224,10 @@
 #     bootstrap's interval, which is no calibrated test: each partial ROC
 #     gap's model_vs_random becomes above_point_estimate and loses
 #     model_ci_low/high; scores.csv unchanged).
+#   - rewritten on 2026-12-05 (each defined partial ROC ratio gains
+#     p_random and random_draws_formed, the area-random test of the
+#     ratio, and scores.csv a partial_roc_p_random row; a model's own
+#     ratio against 1 is read by that p; no other number changed).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -79,6 +79,11 @@ func scoresCSV(r *report.Results) []byte {
 			} else {
 				row("partial_roc_ratio", e, "", p.Ratio)
 			}
+			if p.PRandom > 0 {
+				// The area-random test of the ratio (absent where not
+				// computed; results.json's p_random_note says why).
+				row("partial_roc_p_random", e, "", p.PRandom)
+			}
 			if p.Iterations <= p.NotFormed {
 				// No resample formed a ratio: their mean, percentiles and
 				// P do not exist (results.json holds 0 there, with

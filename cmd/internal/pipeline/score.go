@@ -94,8 +94,10 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
 	mp := s.split(p.vals, p.valid)
+	// The model's minimum and its area over the whole raster bound a floor
+	// the area-random p must know (metrics.Settings.ModelMinArea).
 	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds,
-		ThresholdTrain: append([]float64{}, mp.train...)}
+		ThresholdTrain: append([]float64{}, mp.train...), ModelMin: sums.Stats.Min, ModelMinArea: sums.Stats.FloorArea}
 	in := pointsIn{s: s, vals: p.vals, valid: p.valid, global: s.globalTest()}
 	// The extents are scored at once on the workers (each extent's
 	// bootstrap has its own seed, deriveSeed, so nothing depends on the

@@ -1,0 +1,270 @@
+package metrics
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+)
+
+// randomStream is xored with Settings.Seed to form the second PCG seed
+// word of the area-random draws (PartialROC.PRandom), a stream apart from
+// the published bootstrap's (pcgStream).
+const randomStream = 0x6A09E667F3BCC909
+
+// Reasons given in PartialROC.PRandomNote when PRandom is not computed.
+const (
+	ReasonRandomNotFormed = "the full-sample ratio is undefined"
+	ReasonRandomGap       = "the model's values lie too close together for the histogram to tell their areas apart"
+	ReasonRandomNoDraw    = "no draw formed a ratio"
+)
+
+// MinorFloorShare is the share of an extent's area, per test point, that
+// the model's minimum may hold and still be read as part of a continuous
+// spread when the minimum is not a value a test point takes: at most a
+// tenth of a test point is then expected there under random draws (our
+// choice). Above it the floor's area is not known apart from the values
+// just above it, and PRandom is not computed.
+const MinorFloorShare = 0.1
+
+// areaModel is an extent's area along the curve's x axis (the share of the
+// area at or above a value) as the accumulator knows it: atoms, x in
+// (lo[k], hi[k]] with hi ascending, where area sits at one value (a layout
+// value, or the one value of the model's value set between two layout
+// values), and area spread continuously elsewhere.
+type areaModel struct{ lo, hi []float64 }
+
+// newAreaModel builds the area model of accumulator a (cumulative c) for n
+// test points, or returns why it cannot be known well enough:
+//
+//   - a model with a value set (SetModelValues: few values, each cell's
+//     value one of them) is atoms only: the area at each layout value, and
+//     the spread area of each histogram bin at the one set value the bin
+//     holds besides the layout values (as the Boyce index reads it), in
+//     value order; a bin that holds two or more such values leaves their
+//     areas unknown apart (ReasonRandomGap);
+//   - a model without one (many values: each cell nearly a value of its
+//     own) has atoms at the layout values and its other area spread
+//     continuously; but its minimum over the whole raster (s.ModelMin,
+//     area s.ModelMinArea) may be a floor of many cells: when it is this
+//     extent's minimum, not a layout value, and its area exceeds
+//     MinorFloorShare / n of the extent, that floor is not known apart
+//     from the values just above it.
+func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, string) {
+	W := c.totalAreaF
+	var m areaModel
+	if a.values != nil {
+		i0, i1 := a.occupied()
+		nb := i1 - i0 + 1
+		spread, pv, pcum := a.pointMasses(i0, nb)
+		point, one := a.binPoints(i0, nb)
+		type atom struct {
+			v    float64
+			area int64
+		}
+		atoms := make([]atom, 0, len(pv)+nb)
+		for q, v := range pv {
+			atoms = append(atoms, atom{v, pcum[q+1] - pcum[q]})
+		}
+		for k := range nb {
+			if spread[k] == 0 {
+				continue
+			}
+			if !one[k] {
+				return m, ReasonRandomGap
+			}
+			atoms = append(atoms, atom{point[k], spread[k]})
+		}
+		sort.Slice(atoms, func(i, j int) bool { return atoms[i].v > atoms[j].v })
+		var x int64
+		for _, at := range atoms {
+			m.lo = append(m.lo, float64(x)/W)
+			x += at.area
+			m.hi = append(m.hi, float64(x)/W)
+		}
+		if x != c.w {
+			return areaModel{}, ReasonRandomGap
+		}
+		return m, ""
+	}
+	d := c.values
+	for j := len(d) - 1; j >= 0; j-- {
+		if c.eqA[j] > 0 {
+			ge := c.geArea(j)
+			m.lo, m.hi = append(m.lo, float64(ge-c.eqA[j])/W), append(m.hi, float64(ge)/W)
+		}
+	}
+	if s.ModelMinArea > 0 && a.min == s.ModelMin {
+		if j := sort.SearchFloat64s(d, a.min); !(j < len(d) && d[j] == a.min) &&
+			float64(s.ModelMinArea) > MinorFloorShare/float64(n)*W {
+			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(s.ModelMinArea)/W, MinorFloorShare, n)
+		}
+	}
+	return m, ""
+}
+
+// find returns the atom holding x, or -1 where x lies in continuous area.
+func (m areaModel) find(x float64) int {
+	k := sort.SearchFloat64s(m.hi, x)
+	if k < len(m.hi) && m.lo[k] < x {
+		return k
+	}
+	return -1
+}
+
+// curveGroup is one group of presences on the curve: count presences
+// between x = xa and x = xb (a vertical step when they are equal).
+type curveGroup struct {
+	xa, xb float64
+	count  int
+}
+
+// groupRatio is the partial ROC ratio at tau = snapCount((1 - E) n) of n
+// presences of which before lie at smaller x than the groups gs, which
+// are in ascending x (descending value): the formula of partialAreas (the
+// crossing, its interpolation and tie, the model area's trapezoids, the
+// null area) on groups given directly. ok is false where the ratio is not
+// formed (a crossing inside a group of two or more, or no area left).
+func groupRatio(gs []curveGroup, before, n int, tau float64) (ratio float64, ok bool) {
+	y := before
+	g := 0
+	for g < len(gs) && !(float64(y+gs[g].count) >= tau) {
+		y += gs[g].count
+		g++
+	}
+	if g == len(gs) {
+		return 0, false
+	}
+	c := gs[g]
+	ya, yb := y, y+c.count
+	s := (tau - float64(ya)) / float64(c.count)
+	xE := c.xb
+	if s < 1 {
+		xE = c.xa + s*(c.xb-c.xa)
+		if c.count >= 2 && s > 0 {
+			return 0, false
+		}
+	}
+	m := (c.xb - xE) * (tau + float64(yb)) / 2
+	prevX, y := c.xb, yb
+	for _, h := range gs[g+1:] {
+		yb := y + h.count
+		m += (h.xa - prevX) * float64(y)
+		m += (h.xb - h.xa) * float64(y+yb) / 2
+		prevX, y = h.xb, yb
+	}
+	m += (1 - prevX) * float64(n)
+	null := (1 - xE*xE) / 2
+	if !(null > 0) {
+		return 0, false
+	}
+	return (m / float64(n)) / null, true
+}
+
+// areaRandom sets PRandom (or PRandomNote) of each formed ratio of out:
+// the Monte Carlo p-value of the full-sample ratio under the hypothesis
+// that the test points were drawn at random over the extent's area, the
+// model knowing nothing of where they are (each test point's value then
+// follows the area's distribution of values; the ratio's distribution is
+// that of n such draws). Each of B = s.Iterations draws places n points
+// at x uniform on (0, 1] (the share of area at or above a random cell's
+// value is uniform where the values are continuous; a point in an atom
+// takes the atom's value, tied with the others there; areaModel); only
+// the largest x matter (the curve crosses 1 - E at the ceil((1-E)n)-th
+// point), so the draws are the descending order statistics of n
+// uniforms, x_(n) = U^(1/n), x_(k) = x_(k+1) U^(1/k) (Devroye 1986,
+// ch. V.3), taken down to the crossing of the smallest 1 - E and on
+// through the atom it lies in. PRandom = (1 + #{draws with ratio >=
+// the observed}) / (1 + formed draws) (Davison & Hinkley 1997, eq. 4.11),
+// a one-sided test of the ratio against those of random test points.
+// Draws whose ratio is not formed are left out.
+//
+// Devroye, L. (1986) Non-Uniform Random Variate Generation. Springer.
+// Davison, A.C. & Hinkley, D.V. (1997) Bootstrap Methods and their
+// Application. Cambridge University Press.
+func areaRandom(a *Accumulator, c *cumulative, n int, s Settings, out []PartialROC) {
+	any := false
+	for i := range out {
+		if out[i].Formed {
+			any = true
+		} else {
+			out[i].PRandomNote = ReasonRandomNotFormed
+		}
+	}
+	if !any || n == 0 {
+		return
+	}
+	am, why := newAreaModel(a, c, s, n)
+	if why != "" {
+		for i := range out {
+			if out[i].Formed {
+				out[i].PRandomNote = why
+			}
+		}
+		return
+	}
+	taus := make([]float64, len(out))
+	need := 1
+	for i, pr := range out {
+		taus[i] = snapCount((1 - pr.E) * float64(n))
+		need = max(need, n-int(math.Ceil(taus[i]))+1)
+	}
+	need = min(need, n)
+	rng := rand.New(rand.NewPCG(s.Seed, s.Seed^randomStream))
+	type pt struct {
+		x    float64
+		atom int
+	}
+	pts := make([]pt, 0, need+8)
+	gs := make([]curveGroup, 0, need+8)
+	ge := make([]int, len(out))
+	formed := make([]int, len(out))
+	for it := 0; it < s.Iterations; it++ {
+		pts = pts[:0]
+		x := 1.0
+		for k := n; k >= 1; k-- {
+			x *= math.Pow(rng.Float64(), 1/float64(k))
+			at := am.find(x)
+			if len(pts) >= need && !(at >= 0 && at == pts[len(pts)-1].atom) {
+				break
+			}
+			pts = append(pts, pt{x, at})
+		}
+		// Groups in ascending x: the drawn points from the smallest x.
+		gs = gs[:0]
+		for q := len(pts) - 1; q >= 0; q-- {
+			p := pts[q]
+			if p.atom >= 0 && len(gs) > 0 && q+1 < len(pts) && pts[q+1].atom == p.atom {
+				gs[len(gs)-1].count++
+				continue
+			}
+			g := curveGroup{xa: p.x, xb: p.x, count: 1}
+			if p.atom >= 0 {
+				g.xa, g.xb = am.lo[p.atom], am.hi[p.atom]
+			}
+			gs = append(gs, g)
+		}
+		for i, pr := range out {
+			if !pr.Formed {
+				continue
+			}
+			if r, ok := groupRatio(gs, n-len(pts), n, taus[i]); ok {
+				formed[i]++
+				if r >= pr.Ratio {
+					ge[i]++
+				}
+			}
+		}
+	}
+	for i := range out {
+		if !out[i].Formed {
+			continue
+		}
+		out[i].RandomFormed = formed[i]
+		if formed[i] == 0 {
+			out[i].PRandomNote = ReasonRandomNoDraw
+			continue
+		}
+		out[i].PRandom = float64(1+ge[i]) / float64(1+formed[i])
+	}
+}

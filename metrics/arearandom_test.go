@@ -1,0 +1,211 @@
+package metrics
+
+import (
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+// TestGroupRatioIsPartialArea: groupRatio, the ratio the area-random
+// draws are scored with, gives the full-sample ratio bit for bit when fed
+// the test presences' own groups, on continuous values, on values tied
+// with the background (a model of 12 values) and across E; so the draws
+// and the observed ratio are one formula.
+func TestGroupRatioIsPartialArea(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	for _, levels := range []int{0, 12} {
+		vals := make([]float64, 5000)
+		for i := range vals {
+			vals[i] = rng.Float64()
+			if levels > 0 {
+				vals[i] = math.Floor(vals[i]*float64(levels)) / float64(levels)
+			}
+		}
+		lay, err := NewLayout(vals, 256)
+		if err != nil {
+			t.Fatal(err)
+		}
+		acc := lay.NewAccumulator()
+		for i, v := range vals {
+			acc.Add(v, int64(1+i%3))
+		}
+		for rep := 0; rep < 50; rep++ {
+			n := 10 + rng.IntN(200)
+			test := make([]float64, n)
+			for i := range test {
+				test[i] = vals[rng.IntN(len(vals))]
+			}
+			es := []float64{0.05, 0.1, 0.3}
+			sc, err := Score(acc, nil, test, Settings{E: es, Iterations: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			cum := newCumulative(acc)
+			idx, _ := layoutIndices(lay, test, "test")
+			tp := newPresences(cum, idx)
+			gs := make([]curveGroup, len(tp.j))
+			for g := range tp.j {
+				gs[g] = curveGroup{xa: tp.xgt[g], xb: tp.xge[g], count: tp.count[g]}
+			}
+			for i, pr := range sc.PartialROC {
+				r, ok := groupRatio(gs, 0, n, snapCount((1-es[i])*float64(n)))
+				if ok != pr.Formed || (ok && math.Float64bits(r) != math.Float64bits(pr.Ratio)) {
+					t.Fatalf("levels %d, n %d, E %g: groupRatio %v (%v), Score's ratio %v (formed %v)", levels, n, es[i], r, ok, pr.Ratio, pr.Formed)
+				}
+			}
+		}
+	}
+}
+
+// TestAreaRandomModels: where the area-random p is computed and where not
+// (newAreaModel), and its size on a model of few values, whose ties the
+// draws must reproduce: a model of 300 values of uneven areas (value set
+// given, as a pass gives a Byte or rounded model's) scored on test points
+// drawn at random over the area gives p < 0.05 in about 5% of studies
+// (band our choice: 1 to 10%, 300 studies).
+func TestAreaRandomModels(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	const cells = 8000
+	vals := make([]float64, cells)
+	for i := range vals {
+		u := rng.Float64()
+		vals[i] = math.Floor(u*u*300) / 300
+	}
+	score := func(vals, test []float64, withSet bool, s Settings) PartialROC {
+		t.Helper()
+		lay, err := NewLayout(test, 4096) // the pipeline's histogram
+		if err != nil {
+			t.Fatal(err)
+		}
+		acc := lay.NewAccumulator()
+		if withSet {
+			var set ValueSet
+			var cache ValueCache
+			bins := make([]int32, len(vals))
+			set.AddRow(vals, bins, &cache)
+			distinct, ok := set.Values()
+			if !ok {
+				t.Fatal("no value set")
+			}
+			acc.SetModelValues(distinct)
+		}
+		for _, v := range vals {
+			acc.Add(v, 1)
+		}
+		if s.E == nil {
+			s.E = []float64{0.1}
+		}
+		s.Iterations = 300
+		sc, err := Score(acc, nil, test, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return sc.PartialROC[0]
+	}
+	// Two values closer than a histogram bin, neither a test value:
+	// their areas are not known apart.
+	close := make([]float64, 4000)
+	for i := range close {
+		close[i] = float64(i%40) / 40
+		if i%40 == 7 && i%80 == 7 {
+			close[i] += 1e-9
+		}
+	}
+	var far []float64
+	for _, v := range close {
+		if v > 0.3 && len(far) < 60 {
+			far = append(far, v)
+		}
+	}
+	if pr := score(close, far, true, Settings{E: []float64{0.5}}); pr.PRandom != 0 || pr.PRandomNote != ReasonRandomGap {
+		t.Errorf("two values in a bin: p %g, note %q, want none and %q", pr.PRandom, pr.PRandomNote, ReasonRandomGap)
+	}
+	// A floor not taken by a test point, on a model without a value set:
+	// refused when its area (ModelMin, ModelMinArea) exceeds
+	// MinorFloorShare / n of the extent, computed otherwise.
+	var above0 []float64
+	var floorArea int64
+	for _, v := range vals {
+		if v == 0 {
+			floorArea++
+		} else if len(above0) < 60 && v > 0.1 {
+			above0 = append(above0, v)
+		}
+	}
+	above0 = append(above0, vals[0]+1e-6) // one distinct test value at the low end
+	if pr := score(vals, above0, false, Settings{E: []float64{0.5}, ModelMin: 0, ModelMinArea: floorArea}); pr.PRandom != 0 || !strings.Contains(pr.PRandomNote, "minimum, which no test point takes") {
+		t.Errorf("a floor of %d cells: p %g, note %q, want none and the floor named", floorArea, pr.PRandom, pr.PRandomNote)
+	}
+	if pr := score(vals, above0, false, Settings{E: []float64{0.5}, ModelMin: 0, ModelMinArea: 1}); pr.PRandom == 0 {
+		t.Errorf("a floor of one cell: no p (%q)", pr.PRandomNote)
+	}
+	// Size with the value set.
+	const reps = 300
+	low, n := 0, 0
+	for rep := 0; rep < reps; rep++ {
+		test := make([]float64, 80)
+		for i := range test {
+			test[i] = vals[rng.IntN(cells)]
+		}
+		pr := score(vals, test, true, Settings{Seed: uint64(rep)})
+		if !pr.Formed {
+			continue
+		}
+		if pr.PRandom == 0 {
+			t.Fatalf("study %d: no p (%q)", rep, pr.PRandomNote)
+		}
+		n++
+		if pr.PRandom < 0.05 {
+			low++
+		}
+	}
+	if n < reps/3 {
+		t.Fatalf("only %d of %d studies formed a ratio", n, reps)
+	}
+	if got := float64(low) / float64(n); got < 0.01 || got > 0.10 {
+		t.Errorf("model of 300 values with no skill: p_random < 0.05 in %.3f of %d studies, want 0.01 to 0.10", got, n)
+	}
+	t.Logf("model of 300 values with no skill: p_random < 0.05 in %d of %d studies with a formed ratio", low, n)
+}
+
+// TestAreaRandomPower: a model that ranks the test points well gets a
+// small p; the same study scored twice gives the same p (seeded draws).
+func TestAreaRandomPower(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	vals := make([]float64, 10000)
+	for i := range vals {
+		vals[i] = rng.Float64()
+	}
+	lay, err := NewLayout(vals, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	acc := lay.NewAccumulator()
+	for _, v := range vals {
+		acc.Add(v, 1)
+	}
+	// Test points among the top half of the values.
+	var test []float64
+	for _, v := range vals {
+		if v > 0.5 && len(test) < 60 {
+			test = append(test, v)
+		}
+	}
+	s := Settings{E: []float64{0.05}, Iterations: 500, Seed: 3}
+	a, err := Score(acc, nil, test, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := Score(acc, nil, test, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pa := a.PartialROC[0]
+	if !(pa.PRandom > 0 && pa.PRandom <= 2.0/501) {
+		t.Errorf("informative model: p_random %g (%q), want at most 2/501", pa.PRandom, pa.PRandomNote)
+	}
+	if b.PartialROC[0].PRandom != pa.PRandom {
+		t.Errorf("p_random %g then %g on the same study and seed", pa.PRandom, b.PartialROC[0].PRandom)
+	}
+}
