@@ -4,7 +4,10 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
+	"sync"
+	"sync/atomic"
 )
 
 // randomStream is xored with Settings.Seed to form the second PCG seed
@@ -103,13 +106,15 @@ func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, 
 	return m, ""
 }
 
-// find returns the atom holding x, or -1 where x lies in continuous area.
-func (m areaModel) find(x float64) int {
-	k := sort.SearchFloat64s(m.hi, x)
-	if k < len(m.hi) && m.lo[k] < x {
-		return k
+// expNeg returns exp(-d) for d >= 0: below 1/64 by its Taylor series to
+// the d^6 term (the next, d^7/5040 < 1e-16, is below float64's
+// resolution), else by math.Exp. The draws of areaRandom take one per
+// point, most of them small (a spacing of n uniforms near 1).
+func expNeg(d float64) float64 {
+	if d < 1.0/64 {
+		return 1 - d*(1-d*0.5*(1-d*(1.0/3)*(1-d*0.25*(1-d*0.2*(1-d*(1.0/6))))))
 	}
-	return -1
+	return math.Exp(-d)
 }
 
 // curveGroup is one group of presences on the curve: count presences
@@ -172,12 +177,17 @@ func groupRatio(gs []curveGroup, before, n int, tau float64) (ratio float64, ok 
 // takes the atom's value, tied with the others there; areaModel); only
 // the largest x matter (the curve crosses 1 - E at the ceil((1-E)n)-th
 // point), so the draws are the descending order statistics of n
-// uniforms, x_(n) = U^(1/n), x_(k) = x_(k+1) U^(1/k) (Devroye 1986,
-// ch. V.3), taken down to the crossing of the smallest 1 - E and on
-// through the atom it lies in. PRandom = (1 + #{draws with ratio >=
+// uniforms, -log x_(n-i) = E_0/n + E_1/(n-1) + ... + E_i/(n-i) with E_l
+// standard exponential (Renyi's representation; Devroye 1986, ch. V.2),
+// taken down to the crossing of the smallest 1 - E and on through the
+// atom it lies in. PRandom = (1 + #{draws with ratio >=
 // the observed}) / (1 + formed draws) (Davison & Hinkley 1997, eq. 4.11),
 // a one-sided test of the ratio against those of random test points.
-// Draws whose ratio is not formed are left out.
+// Draws whose ratio is not formed are left out. An area whose atoms are
+// negligible (nearlyContinuous: a model of many values, whose atoms are
+// the test points' own cells) takes the draws of continuous values for
+// its n, drawn once per process and shared by every model and extent
+// (sharedRatios); another draws its own from s.Seed (drawRatios).
 //
 // Devroye, L. (1986) Non-Uniform Random Variate Generation. Springer.
 // Davison, A.C. & Hinkley, D.V. (1997) Bootstrap Methods and their
@@ -203,28 +213,123 @@ func areaRandom(a *Accumulator, c *cumulative, n int, s Settings, out []PartialR
 		}
 		return
 	}
-	taus := make([]float64, len(out))
-	need := 1
+	es := make([]float64, len(out))
 	for i, pr := range out {
-		taus[i] = snapCount((1 - pr.E) * float64(n))
+		es[i] = pr.E
+	}
+	var ratios [][]float64
+	if am.nearlyContinuous(n) {
+		ratios = sharedRatios(n, s.Iterations, es)
+	} else {
+		ratios = drawRatios(am, n, s.Iterations, s.Seed^randomStream, es)
+	}
+	for i := range out {
+		if !out[i].Formed {
+			continue
+		}
+		rs := ratios[i]
+		out[i].RandomFormed = len(rs)
+		if len(rs) == 0 {
+			out[i].PRandomNote = ReasonRandomNoDraw
+			continue
+		}
+		atLeast := len(rs) - sort.SearchFloat64s(rs, out[i].Ratio)
+		out[i].PRandom = float64(1+atLeast) / float64(1+len(rs))
+	}
+}
+
+// nearlyContinuous tells whether n draws over m would almost never tie:
+// the expected number of pairs of the n draws in one atom, n(n-1)/2 times
+// the sum of the atoms' squared shares, is below 0.01 (our cut-off), as
+// for a model of many values whose atoms are the test points' own cells.
+// Its ratios are then those of continuous values (sharedRatios).
+func (m areaModel) nearlyContinuous(n int) bool {
+	var s2 float64
+	for k := range m.lo {
+		d := m.hi[k] - m.lo[k]
+		s2 += d * d
+	}
+	return float64(n)*float64(n-1)/2*s2 < 0.01
+}
+
+// sharedEntry is one entry of sharedDraws, computed once.
+type sharedEntry struct {
+	once   sync.Once
+	ratios [][]float64
+}
+
+var (
+	sharedDraws  sync.Map // "n B es" -> *sharedEntry
+	sharedCount  atomic.Int64
+	maxSharedKey = int64(4096) // entries kept (our choice; 8 KB each at B = 1000)
+)
+
+// sharedRatios are drawRatios of continuous values (no atom): they depend
+// on n, B and E alone, so every model and extent with n test points
+// shares them, drawn once per process from a seed of n (PCG(n, n xor
+// randomStream)) and kept (at most maxSharedKey sets).
+func sharedRatios(n, B int, es []float64) [][]float64 {
+	key := fmt.Sprint(n, " ", B, " ", es)
+	if v, ok := sharedDraws.Load(key); ok {
+		e := v.(*sharedEntry)
+		e.once.Do(func() { e.ratios = drawRatios(areaModel{}, n, B, uint64(n)^randomStream, es) })
+		return e.ratios
+	}
+	if sharedCount.Load() >= maxSharedKey {
+		return drawRatios(areaModel{}, n, B, uint64(n)^randomStream, es)
+	}
+	v, loaded := sharedDraws.LoadOrStore(key, &sharedEntry{})
+	if !loaded {
+		sharedCount.Add(1)
+	}
+	e := v.(*sharedEntry)
+	e.once.Do(func() { e.ratios = drawRatios(areaModel{}, n, B, uint64(n)^randomStream, es) })
+	return e.ratios
+}
+
+// drawRatios draws B sets of n points at random over the area m (PCG
+// seeded with (seed, seed xor randomStream)) and returns, per E of es,
+// the ratios of the sets that formed one, ascending.
+func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
+	taus := make([]float64, len(es))
+	need := 1
+	for i, e := range es {
+		taus[i] = snapCount((1 - e) * float64(n))
 		need = max(need, n-int(math.Ceil(taus[i]))+1)
 	}
 	need = min(need, n)
-	rng := rand.New(rand.NewPCG(s.Seed, s.Seed^randomStream))
+	rng := rand.New(rand.NewPCG(seed, seed^randomStream))
 	type pt struct {
 		x    float64
 		atom int
 	}
 	pts := make([]pt, 0, need+8)
+	inv := make([]float64, n)
+	for i := range inv {
+		inv[i] = 1 / float64(n-i)
+	}
 	gs := make([]curveGroup, 0, need+8)
-	ge := make([]int, len(out))
-	formed := make([]int, len(out))
-	for it := 0; it < s.Iterations; it++ {
+	out := make([][]float64, len(es))
+	for i := range out {
+		out[i] = make([]float64, 0, B)
+	}
+	for it := 0; it < B; it++ {
 		pts = pts[:0]
-		x := 1.0
-		for k := n; k >= 1; k-- {
-			x *= math.Pow(rng.Float64(), 1/float64(k))
-			at := am.find(x)
+		// -log x_(n-i) = sum of E_l / (n - l) for l <= i, E_l standard
+		// exponential (Renyi's representation): x is multiplied by
+		// exp(-E_i / (n - i)) at each step; x falls, so the atom that may
+		// hold it (the last with lo < x) is found by walking down from
+		// the top.
+		x, k := 1.0, len(m.lo)-1
+		for i := 0; i < n; i++ {
+			x *= expNeg(rng.ExpFloat64() * inv[i])
+			for k >= 0 && m.lo[k] >= x {
+				k--
+			}
+			at := -1
+			if k >= 0 && x <= m.hi[k] {
+				at = k
+			}
 			if len(pts) >= need && !(at >= 0 && at == pts[len(pts)-1].atom) {
 				break
 			}
@@ -240,31 +345,18 @@ func areaRandom(a *Accumulator, c *cumulative, n int, s Settings, out []PartialR
 			}
 			g := curveGroup{xa: p.x, xb: p.x, count: 1}
 			if p.atom >= 0 {
-				g.xa, g.xb = am.lo[p.atom], am.hi[p.atom]
+				g.xa, g.xb = m.lo[p.atom], m.hi[p.atom]
 			}
 			gs = append(gs, g)
 		}
-		for i, pr := range out {
-			if !pr.Formed {
-				continue
-			}
+		for i := range es {
 			if r, ok := groupRatio(gs, n-len(pts), n, taus[i]); ok {
-				formed[i]++
-				if r >= pr.Ratio {
-					ge[i]++
-				}
+				out[i] = append(out[i], r)
 			}
 		}
 	}
 	for i := range out {
-		if !out[i].Formed {
-			continue
-		}
-		out[i].RandomFormed = formed[i]
-		if formed[i] == 0 {
-			out[i].PRandomNote = ReasonRandomNoDraw
-			continue
-		}
-		out[i].PRandom = float64(1+ge[i]) / float64(1+formed[i])
+		slices.Sort(out[i])
 	}
+	return out
 }

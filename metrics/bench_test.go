@@ -435,3 +435,22 @@ func BenchmarkValueSetAddRow(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkAreaRandom times the draws of the area-random test of the
+// partial ROC ratio (drawRatios: B = 1000 sets, E = 0.05 and 0.1) for 100,
+// 500 and 1000 test presences of continuous values: what one model and
+// extent costs when its atoms are not negligible, and what a run pays
+// once per number of test points for all its nearly continuous ones
+// (sharedRatios).
+func BenchmarkAreaRandom(b *testing.B) {
+	for _, n := range []int{100, 500, 1000} {
+		b.Run(fmt.Sprintf("presences=%d", n), func(b *testing.B) {
+			b.ReportAllocs()
+			stop := startCPU(b)
+			for i := 0; i < b.N; i++ {
+				drawRatios(areaModel{}, n, 1000, uint64(i), []float64{0.05, 0.1})
+			}
+			stop()
+		})
+	}
+}

@@ -227,7 +227,9 @@
 #   - rewritten on 2026-12-05 (each defined partial ROC ratio gains
 #     p_random and random_draws_formed, the area-random test of the
 #     ratio, and scores.csv a partial_roc_p_random row; a model's own
-#     ratio against 1 is read by that p; no other number changed).
+#     ratio against 1 is read by that p; no other number changed;
+#     rewritten again when the draws of a nearly continuous extent became
+#     shared per number of test points: p_random's values moved).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
