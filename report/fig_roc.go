@@ -145,6 +145,7 @@ func rocFigure(r *Results) figure {
 	all, noCurve := rocCurveExtents(r, rocExtents(r))
 	es, thinned := rocShown(all)
 	rk := rocRamp(es)
+	styles, twins := rocCurveStyles(es, rk)
 	f := figure{Name: rocFigureName, Title: "ROC curves on the area axis", W: twoColumns}
 	barW := 24 * vg.Millimeter
 	if !rampCurves(es) {
@@ -155,11 +156,14 @@ func rocFigure(r *Results) figure {
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
 	f.Caption = rocCaption(r, es, len(all), thinned, bands)
+	if len(twins) > 0 {
+		f.Caption += rocTwinsCaption
+	}
 	if len(es) > 0 {
 		f.Caption += noCurveSentence(noCurve)
 	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
-	legend := legendRows(rocLegend(r, es, bands, diag), f.W-barW)
+	legend := legendRows(append(rocLegend(r, es, bands, diag), twins...), f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
 	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
 	f.draw = func(dc draw.Canvas) error {
@@ -171,7 +175,7 @@ func rocFigure(r *Results) figure {
 			plots[j] = make([]*plot.Plot, cols)
 		}
 		for i, model := range panels {
-			p, err := rocPanel(r, model, es, bands, rk, panelW, cols, diag)
+			p, err := rocPanel(r, model, es, styles, bands, panelW, cols, diag)
 			if err != nil {
 				return err
 			}
@@ -209,6 +213,41 @@ func rocRamp(es []Extent) *rampKey {
 	}
 	return rk
 }
+
+// rocCurveStyles returns the line style of each curve of es (in its
+// order): the base region and the whole raster in their own styles
+// (rocAnchorStyle), every other extent in the colour of its area on the
+// ramp rk, solid unless extents outside its nested chain lie within
+// rampTwinGap of it on the ramp, when each takes a dash pattern of its own
+// (twinDashes); and the key's entries for those twins, by area.
+func rocCurveStyles(es []Extent, rk *rampKey) ([]draw.LineStyle, []legendItem) {
+	styles := make([]draw.LineStyle, len(es))
+	var onRamp []int
+	var ts []float64
+	var chains []string
+	for k, ex := range es {
+		if ls, ok := rocAnchorStyle(ex.Kind); ok {
+			styles[k] = ls
+			continue
+		}
+		onRamp = append(onRamp, k)
+		ts = append(ts, rk.t(ex.AreaKm2))
+		chains = append(chains, ex.Chain)
+	}
+	dash, twin := twinDashes(ts, chains)
+	var twins []legendItem
+	for q, k := range onRamp {
+		styles[k] = lineStyle(areaRamp(ts[q]), 1.1, twinDash(dash[q]))
+		if twin[q] {
+			twins = append(twins, legendItem{es[k].ID, lineThumb{styles[k]}})
+		}
+	}
+	return styles, twins
+}
+
+// rocTwinsCaption says why some curves are dashed and named in the key.
+const rocTwinsCaption = " Extents outside one nested chain whose areas lie within 1/50 of the colour bar of each other (our choice) " +
+	"have nearly one colour: each of their curves takes its own dash pattern, and the key names them."
 
 // rocCaption is the ROC figure's caption: what the axes and curves are,
 // the anchors' styles, the partial ROC bands (rocBandsCaption), the
@@ -395,11 +434,10 @@ func (t bandsThumb) Thumbnail(c *draw.Canvas) {
 }
 
 // rocPanel draws model's panel: the null's shade, the partial ROC bands
-// (rocBands), the random prediction (diag) and one curve per extent of es on the
-// area ramp rk (rocRamp; the anchors in their own styles), largest
-// first. The panel of a model or null scored on no extent holds only
+// (rocBands), the random prediction (diag) and one curve per extent of es
+// in its style (styles, rocCurveStyles), largest first. The panel of a model or null scored on no extent holds only
 // rocUnscoredNote.
-func rocPanel(r *Results, model string, es []Extent, bands []rocBandSpec, rk *rampKey, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
+func rocPanel(r *Results, model string, es []Extent, styles []draw.LineStyle, bands []rocBandSpec, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
 	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 	p.X.Label.Text = "share of extent predicted present"
@@ -468,10 +506,7 @@ func rocPanel(r *Results, model string, es []Extent, bands []rocBandSpec, rk *ra
 		if err != nil {
 			return nil, fmt.Errorf("report: figure roc: %w", err)
 		}
-		l.LineStyle = lineStyle(areaRamp(rk.t(ex.AreaKm2)), 1.1, nil)
-		if ls, ok := rocAnchorStyle(ex.Kind); ok {
-			l.LineStyle = ls
-		}
+		l.LineStyle = styles[k]
 		p.Add(newPaddingLine(l))
 	}
 	return p, nil

@@ -4,6 +4,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"sort"
 	"strings"
 	"unicode/utf8"
 
@@ -260,6 +261,68 @@ func modelGlyph(i int) draw.GlyphDrawer { return glyphs[i%len(glyphs)] }
 func areaRamp(t float64) color.RGBA {
 	stops := [][3]float64{{34, 34, 85}, {0, 153, 136}, {221, 170, 51}}
 	return rampColor(stops, t)
+}
+
+// rampTwinGap is how close on a colour ramp (positions 0 to 1) two
+// curves or outlines may lie before their colours are taken for one (our
+// choice: 1/50 of the ramp, over which areaRamp's colour moves by at most
+// 9 of 255 levels in any channel, a difference a line 1 pt wide does not
+// show).
+const rampTwinGap = 0.02
+
+// twinDashes returns, for members at ramp positions ts whose nested
+// chains are chains ("" for none), the index of each member's dash
+// pattern (twinDash) and whether it has a twin: a member outside its
+// chain (another chain, or either in none) within rampTwinGap of it on
+// the ramp. Members without a twin are solid (0); the members that have
+// twins, in order of position, each take the first pattern that none of
+// their twins placed before them has, so that no two twins are drawn
+// alike whatever their number. Two members of one chain are not twins:
+// nested, their outlines lie one inside the other, and two nested extents
+// of nearly one area hold nearly the same cells, so their curves nearly
+// coincide.
+func twinDashes(ts []float64, chains []string) (dash []int, twin []bool) {
+	n := len(ts)
+	dash, twin = make([]int, n), make([]bool, n)
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return ts[order[a]] < ts[order[b]] })
+	apart := func(i, j int) bool {
+		return i != j && math.Abs(ts[i]-ts[j]) < rampTwinGap && (chains[i] == "" || chains[i] != chains[j])
+	}
+	for a, i := range order {
+		used := map[int]bool{}
+		for _, j := range order[:a] {
+			if apart(i, j) {
+				used[dash[j]] = true
+			}
+		}
+		for j := range n {
+			twin[i] = twin[i] || apart(i, j)
+		}
+		for used[dash[i]] {
+			dash[i]++
+		}
+	}
+	return dash, twin
+}
+
+// twinDash is the k-th dash pattern of twins on a ramp: solid, then the
+// patterns of dashes, then patterns of k - len(dashes) + 2 short dashes
+// and a long gap, each of its own length, so that every k has a pattern
+// of its own.
+func twinDash(k int) []vg.Length {
+	if k < len(dashes) {
+		return dashes[k]
+	}
+	var d []vg.Length
+	for range k - len(dashes) + 2 {
+		d = append(d, vg.Points(3), vg.Points(1.5))
+	}
+	d[len(d)-1] = vg.Points(5)
+	return d
 }
 
 // suitabilityRamp maps a suitability in [0, 1] to a grey from near white
