@@ -403,9 +403,9 @@ func rocBandsCaption(es []float64, bands []rocBandSpec) string {
 	c := fmt.Sprintf("Grey bands: the partial ROC region of each E (%s), where at most E of the test records are omitted, from y = 1 down to 1 − E: "+
 		"the region of E = %s is the darkest band at the top, that of each larger E its own, lighter band and every band above it (the key draws each). ",
 		joinList(shown), shown[0])
-	if len(es) > len(bands) {
+	if len(es) > rocMaxBands {
 		var rest []string
-		for _, e := range es[len(bands):] {
+		for _, e := range es[rocMaxBands:] {
 			rest = append(rest, fmtG(e))
 		}
 		c += fmt.Sprintf("Only the first %d E values given are shaded (our choice); E = %s are not, and the partial ROC table gives their ratios. ", rocMaxBands, joinList(rest))

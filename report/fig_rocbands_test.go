@@ -72,7 +72,7 @@ func TestROCBands(t *testing.T) {
 		seen := map[string]bool{}
 		top := 1.0
 		for k, b := range bs {
-			if b.e != bs[k].e || b.hi != top || b.lo != 1-b.e {
+			if b.hi != top || b.lo != 1-b.e {
 				t.Errorf("E %v: band %d spans %g..%g for E = %g, want %g..%g", es, k, b.lo, b.hi, b.e, 1-b.e, top)
 			}
 			if k > 0 && !(b.fill.Y > bs[k-1].fill.Y) {
@@ -86,15 +86,17 @@ func TestROCBands(t *testing.T) {
 			top = b.lo
 		}
 		// The first E as given is always shaded.
-		if found := false; true {
-			for _, b := range bs {
-				found = found || b.e == es[0]
-			}
-			if !found {
-				t.Errorf("E %v: the first E is not shaded", es)
-			}
+		found := false
+		for _, b := range bs {
+			found = found || b.e == es[0]
+		}
+		if !found {
+			t.Errorf("E %v: the first E is not shaded", es)
 		}
 	}
+	six := []float64{0.3, 0.01, 0.05, 0.1, 0.2, 0.5}
+	checkWords(t, "six E", rocBandsCaption(six, rocBands(six)),
+		[]string{"partial ROC region of each E (0.01, 0.05, 0.1 and 0.3)", "Only the first 4 E values given are shaded (our choice); E = 0.2 and 0.5 are not"}, nil)
 	if b := rocBands([]float64{0.05}); b[0].fill != rocBand {
 		t.Errorf("one E: grey %d, want the band's %d as before", b[0].fill.Y, rocBand.Y)
 	}
