@@ -480,7 +480,7 @@ func TestResampledPointsCutOff(t *testing.T) {
 		t.Fatal("no partial ROC comparison with the null")
 	}
 	checkWords(t, "headline", s.Headline, []string{"is undetermined for good, truncated and broad (not judged: every difference rests on fewer than the 30 common test points we judge a difference from the resamples on, our cut-off)"}, nil)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -233,7 +233,11 @@ const rampWidth = 0.9
 type mapKey struct {
 	styles []draw.LineStyle // per member of the group, in its order
 	named  []legendItem     // the anchors, then the named members
-	ramp   *rampKey         // nil when no member is on the ramp
+	// twins names the members on the ramp drawn with a dash pattern
+	// because one outside their chain has nearly their colour
+	// (twinDashes).
+	twins []legendItem
+	ramp  *rampKey // nil when no member is on the ramp
 	// order is the order the outlines are drawn in: ramp (by value),
 	// named, anchors; thinned is the number of members on the ramp not
 	// drawn (rampDrawn).
@@ -350,9 +354,22 @@ func mapKeyOf(r *Results, g mapGroup) mapKey {
 		for _, q := range rest {
 			k.styles[q] = lineStyle(areaRamp(math.Max(0, rk.t(vals[q]))), rampWidth, nil)
 		}
+		var ts []float64
+		var chains []string
 		for _, i := range rampDrawn(len(rest)) {
-			k.order = append(k.order, rest[i])
-			rk.marks = append(rk.marks, vals[rest[i]])
+			q := rest[i]
+			k.order = append(k.order, q)
+			rk.marks = append(rk.marks, vals[q])
+			ts = append(ts, math.Max(0, rk.t(vals[q])))
+			chains = append(chains, r.Extents[g.members[q]].Chain)
+		}
+		// Outlines of one colour outside one chain: a dash each, named.
+		dash, twin := twinDashes(ts, chains)
+		for n, q := range k.order {
+			if twin[n] {
+				k.styles[q].Dashes = twinDash(dash[n])
+				k.twins = append(k.twins, legendItem{r.Extents[g.members[q]].ID, lineThumb{k.styles[q]}})
+			}
 		}
 		k.ramp = rk
 		k.thinned = len(rest) - len(rk.marks)
@@ -375,16 +392,22 @@ const rampKeyH = 12 * vg.Millimeter
 
 // keyHeight is the height of a panel's key laid out in width w.
 func (k mapKey) keyHeight(w vg.Length) vg.Length {
-	h := vg.Length(len(legendRows(k.named, w))) * legendRowHeight
+	h := vg.Length(len(legendRows(k.keyItems(), w))) * legendRowHeight
 	if k.ramp != nil {
 		h += rampKeyH
 	}
 	return h + vg.Points(4)
 }
 
+// keyItems are the key's named outlines: the anchors, the named members,
+// then the twins on the ramp.
+func (k mapKey) keyItems() []legendItem {
+	return append(slices.Clip(k.named), k.twins...)
+}
+
 // draw draws the key in c: the named outlines, then the colour bar.
 func (k mapKey) draw(c draw.Canvas) {
-	rows := legendRows(k.named, c.Max.X-c.Min.X)
+	rows := legendRows(k.keyItems(), c.Max.X-c.Min.X)
 	drawLegendRows(c, rows)
 	if k.ramp == nil {
 		return
@@ -1090,9 +1113,15 @@ func mapCaption(r *Results, model string, groups, all []mapGroup, marks mapMarks
 		"Background: suitability of model %s on a coarse copy of the grid (colour bar; pale blue = no data). "+
 		"Open circles: training points; triangles: test points; %s"+
 		"%s", anchors, maxNamed, model, omissionWords(r, model), outlineWords(cut))
-	thinned := 0
+	thinned, twins := 0, 0
 	for _, g := range groups {
-		thinned += mapKeyOf(r, g).thinned
+		k := mapKeyOf(r, g)
+		thinned += k.thinned
+		twins += len(k.twins)
+	}
+	if twins > 0 {
+		c += " Outlines on a colour bar outside one nested chain whose values lie within 1/50 of the bar of each other (our choice) have nearly one colour: " +
+			"each takes its own dash pattern, and the key under the panel names them."
 	}
 	if thinned > 0 {
 		c += fmt.Sprintf(" A panel draws at most %d outlines on its colour bar, spread evenly over it from the first to the last (the ticks above the bar mark those drawn); "+

@@ -683,10 +683,8 @@ func metricsCaption(r *Results) string {
 		"Markers of different models are shifted a few percent apart along the area axis so that their bars do not overlap. " +
 		"Extents that were not scored are left out."
 	c += undrawnSentence(r)
-	if n := len(nulls(r)); n > 2 {
-		c += " " + nullsInMetricsCaptionMany
-	} else if n > 0 {
-		c += " " + nullsInMetricsCaption
+	if n := len(nulls(r)); n > 0 {
+		c += " " + nullsInMetricsCaptionFor(n)
 	}
 	return c
 }

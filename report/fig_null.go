@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/plot"
@@ -189,8 +190,25 @@ func gapNulls(r *Results) int {
 }
 
 // gapDash is the line pattern of the j-th null in the model-minus-null
-// figure.
-func gapDash(j int) []vg.Length { return gapDashes[j%len(gapDashes)] }
+// figure: gapDashes[j % 10], and from the eleventh null on that pattern
+// (solid: a 12 pt dash and a 3 pt gap) followed by j / 10 dots of 1.2 pt,
+// so that no two nulls share a pattern however many a run holds (the
+// eleventh was drawn as the first).
+func gapDash(j int) []vg.Length {
+	d := gapDashes[j%len(gapDashes)]
+	round := j / len(gapDashes)
+	if round == 0 {
+		return d
+	}
+	if d == nil {
+		d = []vg.Length{vg.Points(12), vg.Points(3)}
+	}
+	d = slices.Clone(d)
+	for range round {
+		d = append(d, vg.Points(1.2), vg.Points(2))
+	}
+	return d
+}
 
 // factorKey is the model-minus-null figure's key when several models
 // meet several nulls: one entry per model (its colour and marker, without

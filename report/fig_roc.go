@@ -5,6 +5,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -140,13 +141,11 @@ func rocFigure(r *Results) figure {
 	n := max(1, len(panels))
 	cols := min(n, 3)
 	rows := (n + cols - 1) / cols
-	e := 0.0
-	if len(r.Settings.E) > 0 {
-		e = r.Settings.E[0]
-	}
+	bands := rocBands(r.Settings.E)
 	all, noCurve := rocCurveExtents(r, rocExtents(r))
 	es, thinned := rocShown(all)
 	rk := rocRamp(es)
+	styles, twins := rocCurveStyles(es, rk)
 	f := figure{Name: rocFigureName, Title: "ROC curves on the area axis", W: twoColumns}
 	barW := 24 * vg.Millimeter
 	if !rampCurves(es) {
@@ -156,12 +155,15 @@ func rocFigure(r *Results) figure {
 		f.W = oneColumn
 	}
 	panelW := (f.W - barW) / vg.Length(cols)
-	f.Caption = rocCaption(r, es, len(all), thinned, e)
+	f.Caption = rocCaption(r, es, len(all), thinned, bands)
+	if len(twins) > 0 {
+		f.Caption += rocTwinsCaption
+	}
 	if len(es) > 0 {
 		f.Caption += noCurveSentence(noCurve)
 	}
 	diag := lineStyle(color.Gray{Y: 90}, 0.7, []vg.Length{vg.Points(1), vg.Points(2)})
-	legend := legendRows(rocLegend(r, es, e, diag), f.W-barW)
+	legend := legendRows(append(rocLegend(r, es, bands, diag), twins...), f.W-barW)
 	legendH := vg.Length(len(legend))*legendRowHeight + vg.Points(4)
 	f.H = min(maxHeight, legendH+vg.Length(rows)*(panelW+vg.Points(14)))
 	f.draw = func(dc draw.Canvas) error {
@@ -173,7 +175,7 @@ func rocFigure(r *Results) figure {
 			plots[j] = make([]*plot.Plot, cols)
 		}
 		for i, model := range panels {
-			p, err := rocPanel(r, model, es, e, rk, panelW, cols, diag)
+			p, err := rocPanel(r, model, es, styles, bands, panelW, cols, diag)
 			if err != nil {
 				return err
 			}
@@ -212,11 +214,46 @@ func rocRamp(es []Extent) *rampKey {
 	return rk
 }
 
+// rocCurveStyles returns the line style of each curve of es (in its
+// order): the base region and the whole raster in their own styles
+// (rocAnchorStyle), every other extent in the colour of its area on the
+// ramp rk, solid unless extents outside its nested chain lie within
+// rampTwinGap of it on the ramp, when each takes a dash pattern of its own
+// (twinDashes); and the key's entries for those twins, by area.
+func rocCurveStyles(es []Extent, rk *rampKey) ([]draw.LineStyle, []legendItem) {
+	styles := make([]draw.LineStyle, len(es))
+	var onRamp []int
+	var ts []float64
+	var chains []string
+	for k, ex := range es {
+		if ls, ok := rocAnchorStyle(ex.Kind); ok {
+			styles[k] = ls
+			continue
+		}
+		onRamp = append(onRamp, k)
+		ts = append(ts, rk.t(ex.AreaKm2))
+		chains = append(chains, ex.Chain)
+	}
+	dash, twin := twinDashes(ts, chains)
+	var twins []legendItem
+	for q, k := range onRamp {
+		styles[k] = lineStyle(areaRamp(ts[q]), 1.1, twinDash(dash[q]))
+		if twin[q] {
+			twins = append(twins, legendItem{es[k].ID, lineThumb{styles[k]}})
+		}
+	}
+	return styles, twins
+}
+
+// rocTwinsCaption says why some curves are dashed and named in the key.
+const rocTwinsCaption = " Extents outside one nested chain whose areas lie within 1/50 of the colour bar of each other (our choice) " +
+	"have nearly one colour: each of their curves takes its own dash pattern, and the key names them."
+
 // rocCaption is the ROC figure's caption: what the axes and curves are,
-// the anchors' styles, the partial ROC band at the first E (e), the
+// the anchors' styles, the partial ROC bands (rocBandsCaption), the
 // nulls' shading, and, with the extents thinned to those drawn (es of
 // nAll), which ones each panel draws.
-func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) string {
+func rocCaption(r *Results, es []Extent, nAll int, thinned bool, bands []rocBandSpec) string {
 	perNull := ""
 	if len(nulls(r)) > 0 {
 		perNull = " (and per null, after the models)"
@@ -244,8 +281,8 @@ func rocCaption(r *Results, es []Extent, nAll int, thinned bool, e float64) stri
 	}
 	c := fmt.Sprintf("ROC curves on the area axis: share of the extent predicted present (x) against share of the test records inside the extent "+
 		"predicted present (y), one panel per model%s, %s"+
-		"Grey band: the partial ROC region, where at most E = %s of the test records are omitted. Dotted: random prediction. "+
-		"The selector under the figures names each curve.", perNull, curves, fmtG(e))
+		"%sDotted: random prediction. "+
+		"The selector under the figures names each curve.", perNull, curves, rocBandsCaption(r.Settings.E, bands))
 	if len(nulls(r)) > 0 {
 		c += " A null's panel is shaded light grey: a reference, not a model."
 	}
@@ -275,12 +312,17 @@ func rampCurves(es []Extent) bool {
 	return false
 }
 
-// rocLegend is the ROC figure's key: the partial ROC band (e > 0), the
+// rocLegend is the ROC figure's key: the partial ROC bands (one E: its
+// band; several: each E's region, its own band and those above it), the
 // random prediction (diag), the nulls' shading and the anchors' styles.
-func rocLegend(r *Results, es []Extent, e float64, diag draw.LineStyle) []legendItem {
+func rocLegend(r *Results, es []Extent, bands []rocBandSpec, diag draw.LineStyle) []legendItem {
 	var items []legendItem
-	if e > 0 {
-		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(e)), boxThumb{fill: rocBand}})
+	if len(bands) == 1 {
+		items = append(items, legendItem{fmt.Sprintf("partial ROC region (E = %s)", fmtG(bands[0].e)), boxThumb{fill: bands[0].fill}})
+	} else {
+		for k, b := range bands {
+			items = append(items, legendItem{fmt.Sprintf("partial ROC region, E = %s", fmtG(b.e)), bandsThumb{bands: bands, upTo: k}})
+		}
 	}
 	items = append(items, legendItem{"random prediction", lineThumb{diag}})
 	if len(nulls(r)) > 0 {
@@ -297,15 +339,105 @@ func rocLegend(r *Results, es []Extent, e float64, diag draw.LineStyle) []legend
 	return items
 }
 
-// rocBand is the fill of the partial ROC region.
+// rocBand is the fill of the partial ROC region of one E, and of the
+// largest E's band when several are shaded.
 var rocBand = color.Gray{Y: 225}
 
-// rocPanel draws model's panel: the null's shade, the partial ROC band at
-// e, the random prediction (diag) and one curve per extent of es on the
-// area ramp rk (rocRamp; the anchors in their own styles), largest
-// first. The panel of a model or null scored on no extent holds only
+// rocMaxBands is the most E values a ROC panel shades (our choice: four
+// greys from rocBandDark to rocBand stay apart in print and under the
+// curves; more would make a gradient that no one reads band by band).
+// The others are named in the caption as not shaded.
+const rocMaxBands = 4
+
+// rocBandDark is the grey of the band nearest y = 1, the smallest E's,
+// when several E values are shaded (our choice: dark enough to stand
+// apart from rocBand, light enough that the lightest curves of the area
+// ramp still show on it).
+const rocBandDark = 190
+
+// rocBandSpec is one shaded band of a ROC panel: y from lo to hi, the
+// part of the partial ROC region of E = e that the region of no smaller
+// E shaded holds; the region of e is this band and every band above it.
+type rocBandSpec struct {
+	e, lo, hi float64
+	fill      color.Gray
+}
+
+// rocBands returns the bands of the first rocMaxBands E values of es as
+// given (the first is the report's main E), ordered by E: the smallest
+// E's band from y = 1 - E to 1, each next one from 1 - E up to the band
+// above it, each in its own grey, darkest at the top (a stricter
+// region). One E keeps rocBand. nil for no E.
+func rocBands(es []float64) []rocBandSpec {
+	shown := slices.Clone(es[:min(len(es), rocMaxBands)])
+	slices.Sort(shown)
+	out := make([]rocBandSpec, 0, len(shown))
+	top := 1.0
+	for k, e := range shown {
+		if !(e > 0 && e < 1) || 1-e >= top {
+			continue // not a region (Validate refuses such E)
+		}
+		grey := rocBand
+		if len(shown) > 1 {
+			grey.Y = uint8(math.Round(rocBandDark + float64(rocBand.Y-rocBandDark)*float64(k)/float64(len(shown)-1)))
+		}
+		out = append(out, rocBandSpec{e: e, lo: 1 - e, hi: top, fill: grey})
+		top = 1 - e
+	}
+	return out
+}
+
+// rocBandsCaption is the caption's sentence on the partial ROC bands of
+// es (bands, rocBands): "" for none.
+func rocBandsCaption(es []float64, bands []rocBandSpec) string {
+	switch len(bands) {
+	case 0:
+		return ""
+	case 1:
+		return fmt.Sprintf("Grey band: the partial ROC region, where at most E = %s of the test records are omitted. ", fmtG(bands[0].e))
+	}
+	var shown []string
+	for _, b := range bands {
+		shown = append(shown, fmtG(b.e))
+	}
+	c := fmt.Sprintf("Grey bands: the partial ROC region of each E (%s), where at most E of the test records are omitted, from y = 1 down to 1 − E: "+
+		"the region of E = %s is the darkest band at the top, that of each larger E its own, lighter band and every band above it (the key draws each). ",
+		joinList(shown), shown[0])
+	if len(es) > rocMaxBands {
+		var rest []string
+		for _, e := range es[rocMaxBands:] {
+			rest = append(rest, fmtG(e))
+		}
+		c += fmt.Sprintf("Only the first %d E values given are shaded (our choice); E = %s are not, and the partial ROC table gives their ratios. ", rocMaxBands, joinList(rest))
+	}
+	return c
+}
+
+// bandsThumb is a key's thumbnail of the region of the upTo-th band:
+// the bands' stripes from the top, those above and at upTo filled, the
+// rest left white, as the panel shades them.
+type bandsThumb struct {
+	bands []rocBandSpec
+	upTo  int
+}
+
+// Thumbnail implements plot.Thumbnailer.
+func (t bandsThumb) Thumbnail(c *draw.Canvas) {
+	r := vg.Rectangle{Min: vg.Point{X: c.Min.X + vg.Points(5), Y: c.Min.Y}, Max: vg.Point{X: c.Max.X - vg.Points(5), Y: c.Max.Y}}
+	h := (r.Max.Y - r.Min.Y) / vg.Length(len(t.bands))
+	for k := 0; k <= t.upTo && k < len(t.bands); k++ {
+		s := vg.Rectangle{Min: vg.Point{X: r.Min.X, Y: r.Max.Y - h*vg.Length(k+1)}, Max: vg.Point{X: r.Max.X, Y: r.Max.Y - h*vg.Length(k)}}
+		c.SetColor(t.bands[k].fill)
+		c.Fill(s.Path())
+	}
+	c.StrokeLines(lineStyle(ink, 0.5, nil), []vg.Point{r.Min, {X: r.Max.X, Y: r.Min.Y}, r.Max, {X: r.Min.X, Y: r.Max.Y}, r.Min})
+}
+
+// rocPanel draws model's panel: the null's shade, the partial ROC bands
+// (rocBands), the random prediction (diag) and one curve per extent of es
+// in its style (styles, rocCurveStyles), largest first. The panel of a model or null scored on no extent holds only
 // rocUnscoredNote.
-func rocPanel(r *Results, model string, es []Extent, e float64, rk *rampKey, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
+func rocPanel(r *Results, model string, es []Extent, styles []draw.LineStyle, bands []rocBandSpec, panelW vg.Length, cols int, diag draw.LineStyle) (*plot.Plot, error) {
 	p := newPlot(rocPanelTitle(r, model), panelW-vg.Points(30))
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, 1, 0, 1
 	p.X.Label.Text = "share of extent predicted present"
@@ -331,12 +463,12 @@ func rocPanel(r *Results, model string, es []Extent, e float64, rk *rampKey, pan
 		p.Add(panelNote{s: rocUnscoredNote})
 		return p, nil
 	}
-	if e > 0 {
-		poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: 1 - e}, {X: 1, Y: 1 - e}, {X: 1, Y: 1}, {X: 0, Y: 1}})
+	for _, b := range bands {
+		poly, err := plotter.NewPolygon(plotter.XYs{{X: 0, Y: b.lo}, {X: 1, Y: b.lo}, {X: 1, Y: b.hi}, {X: 0, Y: b.hi}})
 		if err != nil {
 			return nil, fmt.Errorf("report: figure roc: %w", err)
 		}
-		poly.Color = rocBand
+		poly.Color = b.fill
 		poly.LineStyle.Width = 0
 		p.Add(poly)
 	}
@@ -374,10 +506,7 @@ func rocPanel(r *Results, model string, es []Extent, e float64, rk *rampKey, pan
 		if err != nil {
 			return nil, fmt.Errorf("report: figure roc: %w", err)
 		}
-		l.LineStyle = lineStyle(areaRamp(rk.t(ex.AreaKm2)), 1.1, nil)
-		if ls, ok := rocAnchorStyle(ex.Kind); ok {
-			l.LineStyle = ls
-		}
+		l.LineStyle = styles[k]
 		p.Add(newPaddingLine(l))
 	}
 	return p, nil

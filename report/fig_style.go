@@ -4,6 +4,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"sort"
 	"strings"
 	"unicode/utf8"
 
@@ -235,7 +236,8 @@ func (g polygonGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point
 // lightest come last: indigo, rose, green, wine, teal, olive, purple,
 // cyan, sand. Past nine, a model shares its colour with the models nine,
 // eighteen, ... before it but not their line pattern (seven, modelDash)
-// up to 63 models, nor their marker (eight, modelGlyph) up to 72.
+// up to 63 models, nor their marker (eight, modelGlyph) up to 72, nor,
+// past that, the spokes of their marker (modelGlyph).
 var modelColors = []color.RGBA{
 	{0x33, 0x22, 0x88, 255},
 	{0xCC, 0x66, 0x77, 255},
@@ -248,9 +250,49 @@ var modelColors = []color.RGBA{
 	{0xDD, 0xCC, 0x77, 255},
 }
 
-func modelColor(i int) color.Color      { return modelColors[i%len(modelColors)] }
-func modelDash(i int) []vg.Length       { return dashes[i%len(dashes)] }
-func modelGlyph(i int) draw.GlyphDrawer { return glyphs[i%len(glyphs)] }
+func modelColor(i int) color.Color { return modelColors[i%len(modelColors)] }
+func modelDash(i int) []vg.Length  { return dashes[i%len(dashes)] }
+
+// modelGlyph is model i's marker: glyphs[i % 8], and from the 73rd model
+// on (past the 72 pairs of nine colours and eight markers) the same
+// shape with i / 72 spokes around it (spokedGlyph), so that no two models
+// share colour and marker however many there are (a run holds up to 998
+// models and nulls); the ring waterfall and the model-minus-null figure
+// tell models apart by these two alone.
+func modelGlyph(i int) draw.GlyphDrawer {
+	return spoked(glyphs[i%len(glyphs)], i/(len(modelColors)*len(glyphs)))
+}
+
+// spoked returns g with n spokes around it, or g itself for n = 0.
+func spoked(g draw.GlyphDrawer, n int) draw.GlyphDrawer {
+	if n == 0 {
+		return g
+	}
+	return spokedGlyph{base: g, spokes: n}
+}
+
+// spokedGlyph is a marker with spokes short lines around it, evenly
+// spaced from the top, 0.9 pt wide and 1.3 to 2.05 times the radius from
+// its centre (our choice: clear of every base shape, long enough to read
+// at the markers' 2.4 pt radius, inside the 3 pt margin a PNG sprite
+// keeps): the marker of a series past those the base shapes and
+// colours tell apart, one spoke more for each further round.
+type spokedGlyph struct {
+	base   draw.GlyphDrawer
+	spokes int
+}
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (g spokedGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	g.base.DrawGlyph(c, sty, pt)
+	ls := draw.LineStyle{Color: sty.Color, Width: vg.Points(0.9)}
+	for k := range g.spokes {
+		a := math.Pi/2 + 2*math.Pi*float64(k)/float64(g.spokes)
+		dx, dy := vg.Length(math.Cos(a)), vg.Length(math.Sin(a))
+		in, out := sty.Radius*1.3, sty.Radius*2.05
+		c.StrokeLine2(ls, pt.X+in*dx, pt.Y+in*dy, pt.X+out*dx, pt.Y+out*dy)
+	}
+}
 
 // areaRamp maps t in [0, 1] (small to large extent) to a colour whose
 // lightness rises steadily from dark indigo through teal to ochre (three
@@ -260,6 +302,68 @@ func modelGlyph(i int) draw.GlyphDrawer { return glyphs[i%len(glyphs)] }
 func areaRamp(t float64) color.RGBA {
 	stops := [][3]float64{{34, 34, 85}, {0, 153, 136}, {221, 170, 51}}
 	return rampColor(stops, t)
+}
+
+// rampTwinGap is how close on a colour ramp (positions 0 to 1) two
+// curves or outlines may lie before their colours are taken for one (our
+// choice: 1/50 of the ramp, over which areaRamp's colour moves by at most
+// 9 of 255 levels in any channel, a difference a line 1 pt wide does not
+// show).
+const rampTwinGap = 0.02
+
+// twinDashes returns, for members at ramp positions ts whose nested
+// chains are chains ("" for none), the index of each member's dash
+// pattern (twinDash) and whether it has a twin: a member outside its
+// chain (another chain, or either in none) within rampTwinGap of it on
+// the ramp. Members without a twin are solid (0); the members that have
+// twins, in order of position, each take the first pattern that none of
+// their twins placed before them has, so that no two twins are drawn
+// alike whatever their number. Two members of one chain are not twins:
+// nested, their outlines lie one inside the other, and two nested extents
+// of nearly one area hold nearly the same cells, so their curves nearly
+// coincide.
+func twinDashes(ts []float64, chains []string) (dash []int, twin []bool) {
+	n := len(ts)
+	dash, twin = make([]int, n), make([]bool, n)
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return ts[order[a]] < ts[order[b]] })
+	apart := func(i, j int) bool {
+		return i != j && math.Abs(ts[i]-ts[j]) < rampTwinGap && (chains[i] == "" || chains[i] != chains[j])
+	}
+	for a, i := range order {
+		used := map[int]bool{}
+		for _, j := range order[:a] {
+			if apart(i, j) {
+				used[dash[j]] = true
+			}
+		}
+		for j := range n {
+			twin[i] = twin[i] || apart(i, j)
+		}
+		for used[dash[i]] {
+			dash[i]++
+		}
+	}
+	return dash, twin
+}
+
+// twinDash is the k-th dash pattern of twins on a ramp: solid, then the
+// patterns of dashes, then patterns of k - len(dashes) + 2 short dashes
+// and a long gap, each of its own length, so that every k has a pattern
+// of its own.
+func twinDash(k int) []vg.Length {
+	if k < len(dashes) {
+		return dashes[k]
+	}
+	var d []vg.Length
+	for range k - len(dashes) + 2 {
+		d = append(d, vg.Points(3), vg.Points(1.5))
+	}
+	d[len(d)-1] = vg.Points(5)
+	return d
 }
 
 // suitabilityRamp maps a suitability in [0, 1] to a grey from near white

@@ -66,18 +66,6 @@ func TestModelStylesDistinct(t *testing.T) {
 // six models and two nulls); the sixth to eighth models took the nulls'
 // hollow triangle, square and ring.
 func TestModelsApartFromNullsInGrey(t *testing.T) {
-	// dotted: every dash of the pattern no longer than 2 pt.
-	dotted := func(d []vg.Length) bool {
-		if len(d) == 0 {
-			return false
-		}
-		for i := 0; i < len(d); i += 2 {
-			if d[i] > vg.Points(2) {
-				return false
-			}
-		}
-		return true
-	}
 	if ls, _ := nullLineStyle(0); !dotted(ls.Dashes) {
 		t.Fatalf("the nulls' pattern %v is not dotted: the check below tests nothing", ls.Dashes)
 	}
@@ -93,4 +81,18 @@ func TestModelsApartFromNullsInGrey(t *testing.T) {
 			}
 		}
 	}
+}
+
+// dotted tells whether a line pattern is dotted: every dash of it no
+// longer than 2 pt.
+func dotted(d []vg.Length) bool {
+	if len(d) == 0 {
+		return false
+	}
+	for i := 0; i < len(d); i += 2 {
+		if d[i] > vg.Points(2) {
+			return false
+		}
+	}
+	return true
 }

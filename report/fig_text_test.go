@@ -184,11 +184,11 @@ func TestROCCaptionNamesUnscored(t *testing.T) {
 	constantModel(r, "broad")
 	analyzed(t, r)
 	es := r.Extents
-	checkWords(t, "one model constant", rocCaption(r, es, len(es), false, 0.05),
+	checkWords(t, "one model constant", rocCaption(r, es, len(es), false, rocBands([]float64{0.05})),
 		[]string{"Not scored on any extent (the Scores table says why), so its panel is empty: broad."}, []string{"good.", "truncated."})
 	r = loadSample(t)
 	analyzed(t, r)
-	checkWords(t, "sample", rocCaption(r, es, len(es), false, 0.05), nil, []string{"Not scored on any extent"})
+	checkWords(t, "sample", rocCaption(r, es, len(es), false, rocBands([]float64{0.05})), nil, []string{"Not scored on any extent"})
 }
 
 // TestMetricsCaptionFewFormedResamples: with --iterations 2 to 39 (or an

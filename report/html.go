@@ -216,13 +216,13 @@ type pageView struct {
 	Scores   scoresView
 	Extents  extentsView
 	Settings settingsView
-	Methods  string
+	Methods  methodsDoc
 	// Data is the selector's JSON (teachData), safe inside <script>.
 	Data template.JS
 }
 
 // htmlPage builds report.html from the page template.
-func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error) {
+func htmlPage(r *Results, figs []renderedFigure, methods methodsDoc) ([]byte, error) {
 	// The template gets a marker in place of each figure's SVG, which
 	// goes in after (spliceSVGs): the SVGs are most of the page (7 MB at
 	// 60 extents), and through the template each was copied four times
@@ -232,7 +232,7 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 	if err != nil {
 		return nil, err
 	}
-	b := bytes.NewBuffer(make([]byte, 0, len(v.Data)+len(methods)+1<<20))
+	b := bytes.NewBuffer(make([]byte, 0, len(v.Data)+1<<20))
 	if err := pageTemplate.Execute(b, v); err != nil {
 		return nil, fmt.Errorf("report: report.html: %w", err)
 	}
@@ -241,7 +241,7 @@ func htmlPage(r *Results, figs []renderedFigure, methods string) ([]byte, error)
 
 // newPageView returns the page's view, with svg(i) as the i-th figure's
 // SVG.
-func newPageView(r *Results, figs []renderedFigure, methods string, svg func(i int) template.HTML) (pageView, error) {
+func newPageView(r *Results, figs []renderedFigure, methods methodsDoc, svg func(i int) template.HTML) (pageView, error) {
 	s := r.Sensitivity
 	data, err := teachData(r)
 	if err != nil {

@@ -3,6 +3,10 @@ package report
 import (
 	"encoding/json"
 	"errors"
+	"html"
+	"os"
+	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -134,5 +138,61 @@ func TestSummaryMethodsMarkdownEscaped(t *testing.T) {
 	recs := csvRecords(t, s.WriteCSV)
 	if recs[1][0] != "#1" || !strings.Contains(strings.Join(recs[1], ","), "<models>/m*1*.tif") {
 		t.Errorf("summary.csv row %q", recs[1])
+	}
+}
+
+// TestPageMethodsShowNames: report.html's "Methods text" showed
+// methods.md as it is, so a reader saw a model named "a*b" as "a\*b", the
+// backslash that only a Markdown viewer drops. The page shows the text a
+// viewer of methods.md shows: the name as the user wrote it (escaped for
+// HTML, never read as a tag, an entity or emphasis), the headings as
+// headings and the references as a list, with no Markdown marks left.
+func TestPageMethodsShowNames(t *testing.T) {
+	r := loadSample(t)
+	data, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	name, _ := json.Marshal(weirdName)
+	data = []byte(strings.ReplaceAll(string(data), `"good"`, string(name)))
+	r = analyzedJSON(t, data)
+	dir := t.TempDir()
+	if err := Write(dir, r); err != nil {
+		t.Fatal(err)
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, sec, ok := strings.Cut(string(page), `<section id="methods">`)
+	sec, _, ok2 := strings.Cut(sec, "</section>")
+	if !ok || !ok2 {
+		t.Fatal("report.html has no methods section")
+	}
+	// Every tag in the section is one the page writes itself: the name's
+	// "<b>" must arrive as text, not as a tag.
+	for _, tag := range regexp.MustCompile(`<[^>]*>`).FindAllString(sec, -1) {
+		switch strings.Fields(strings.Trim(tag, "<>/"))[0] {
+		case "h2", "h3", "p", "ul", "li", "div":
+		default:
+			t.Errorf("methods section holds the tag %s", tag)
+		}
+	}
+	text := html.UnescapeString(regexp.MustCompile(`<[^>]*>`).ReplaceAllString(sec, "\n"))
+	if want := "AUC of " + weirdName + " ranged"; !strings.Contains(text, want) {
+		t.Errorf("the page's methods text lacks %q as written", want)
+	}
+	if esc := mdText(weirdName); strings.Contains(text, esc) {
+		t.Errorf("the page's methods text shows the Markdown escapes %q", esc)
+	}
+	for _, mark := range []string{"\n# ", "\n## ", "\n- "} {
+		if strings.Contains(text, mark) {
+			t.Errorf("the page's methods text shows the Markdown mark %q", mark)
+		}
+	}
+	for _, h := range []string{"<h3>Methods</h3>", "<h3>Reply to a reviewer</h3>", "<h3>References</h3>", "<ul><li>Anderson, R.P."} {
+		if !strings.Contains(sec, h) {
+			t.Errorf("methods section lacks %q", h)
+		}
 	}
 }

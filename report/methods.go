@@ -32,20 +32,26 @@ func fmtList(vs []float64, unit string) string {
 	return out
 }
 
-// methodsText writes methods.md: a methods paragraph and a reply to a
-// reviewer, both filled with the run's numbers.
-func methodsText(r *Results) string {
-	var b strings.Builder
+// methodsDoc is the methods text of one run as plain text in headed
+// sections (textSection, as the summary's): methods.md writes it as
+// Markdown (markdown) and report.html as headings, paragraphs and a list,
+// so that the page shows the user's names as written rather than with the
+// backslashes that only a Markdown viewer drops.
+type methodsDoc struct {
+	// Title heads methods.md; the page's own heading stands for it.
+	Title    string
+	Intro    string
+	Sections []textSection
+}
+
+// methodsOf returns the methods text of r: a methods paragraph and a
+// reply to a reviewer, both filled with the run's numbers, and the
+// references.
+func methodsOf(r *Results) methodsDoc {
 	sw := strings.TrimSpace(r.Software.Name + " " + r.Software.Version)
 	if sw == "" {
 		sw = "areasweep"
 	}
-	// Every text goes through mdText: the sentences hold the user's
-	// paths, names and ids, and are the same as those of report.html.
-	fmt.Fprintf(&b, "# %s\n\n", mdText("Methods text ("+sw+")"))
-	b.WriteString(mdText("Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.") + "\n\n")
-	b.WriteString("## Methods\n\n")
-
 	var m strings.Builder
 	methodsFamily(&m, r, sw)
 	methodsRecords(&m, r)
@@ -54,22 +60,46 @@ func methodsText(r *Results) string {
 	// Results in numbers.
 	m.WriteString("Results: ")
 	m.WriteString(resultNumbers(r))
-	b.WriteString(mdText(m.String()) + "\n\n")
-
-	b.WriteString("## Reply to a reviewer\n\n")
 	reply := reviewerText(r)
-	b.WriteString(mdText(reply) + "\n\n")
-	b.WriteString("## References\n\n")
 	refs := slices.Clone(references)
 	if strings.Contains(m.String()+reply, "Hijmans 2012") {
 		refs = append(refs, hijmans2012)
 		slices.Sort(refs)
 	}
-	for _, ref := range refs {
-		b.WriteString("- " + mdText(ref) + "\n")
+	return methodsDoc{
+		Title: "Methods text (" + sw + ")",
+		Intro: "Ready to paste; every number comes from this run. Edit freely. The scores are evaluation aids: they describe how well the models rank the test records against the background of each extent, nothing more.",
+		Sections: []textSection{
+			{Heading: "Methods", Paragraphs: []string{m.String()}},
+			{Heading: "Reply to a reviewer", Paragraphs: []string{reply}},
+			{Heading: "References", List: refs},
+		},
+	}
+}
+
+// markdown writes d as methods.md. Every text goes through mdText: the
+// sentences hold the user's paths, names and ids, and are the same as
+// those of report.html.
+func (d methodsDoc) markdown() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "# %s\n\n%s\n\n", mdText(d.Title), mdText(d.Intro))
+	for k, sec := range d.Sections {
+		fmt.Fprintf(&b, "## %s\n\n", mdText(sec.Heading))
+		for _, p := range sec.Paragraphs {
+			b.WriteString(mdText(p) + "\n\n")
+		}
+		for _, item := range sec.List {
+			b.WriteString("- " + mdText(item) + "\n")
+		}
+		if len(sec.List) > 0 && k < len(d.Sections)-1 {
+			b.WriteString("\n")
+		}
 	}
 	return b.String()
 }
+
+// methodsText returns methods.md for r.
+func methodsText(r *Results) string { return methodsOf(r).markdown() }
 
 // methodsFamily writes the methods paragraph's first sentences: the
 // models, the family of extents (software sw), and the extents left out

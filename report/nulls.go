@@ -47,10 +47,14 @@ func nulls(r *Results) []Model {
 // cross), so that up to ten nulls (two of the user's and the distance-only null
 // already make three) are told apart by grey and marker together. With
 // three markers, a run with six --null rasters drew the distance-only
-// null, the seventh, as the first.
+// null, the seventh, as the first; with five, a run with ten drew the
+// eleventh as the first. Past ten, each further round of ten takes one
+// spoke more around its marker (spokedGlyph), so that no two nulls share
+// grey and marker however many a run holds.
 func nullLineStyle(k int) (draw.LineStyle, draw.GlyphStyle) {
 	grey := []color.Color{color.Gray{Y: 90}, color.Gray{Y: 150}}[k%2]
-	shape := []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}, draw.PlusGlyph{}, draw.CrossGlyph{}}[(k/2)%5]
+	shapes := []draw.GlyphDrawer{draw.RingGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{}, draw.PlusGlyph{}, draw.CrossGlyph{}}
+	shape := spoked(shapes[(k/2)%len(shapes)], k/(2*len(shapes)))
 	return draw.LineStyle{Color: grey, Width: vg.Points(1.2), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2)}},
 		draw.GlyphStyle{Color: grey, Radius: vg.Points(2.4), Shape: shape}
 }
@@ -233,9 +237,29 @@ func rocPanelTitle(r *Results, name string) string {
 // drawn for them) and not shifted along the area axis.
 const nullsInMetricsCaption = "Nulls: grey open circles on dotted lines, at their full-sample scores, without bars and not shifted."
 
-// nullsInMetricsCaptionMany is nullsInMetricsCaption for three nulls or
-// more, whose markers differ (nullLineStyle).
+// nullsInMetricsCaptionMany is nullsInMetricsCaption for three to six
+// nulls, whose markers differ (nullLineStyle).
 const nullsInMetricsCaptionMany = "Nulls: grey open markers on dotted lines (circles for the first two, in two greys, then squares, then triangles), at their full-sample scores, without bars and not shifted."
+
+// nullsInMetricsCaptionFor is the metrics caption's sentence on n nulls:
+// nullsInMetricsCaption for one or two, nullsInMetricsCaptionMany up to
+// six, and past that every marker nullLineStyle gives them named.
+func nullsInMetricsCaptionFor(n int) string {
+	switch {
+	case n <= 0:
+		return ""
+	case n <= 2:
+		return nullsInMetricsCaption
+	case n <= 6:
+		return nullsInMetricsCaptionMany
+	}
+	spokes := ""
+	if n > 10 {
+		spokes = "; from the eleventh on, each further ten take one spoke more around the marker"
+	}
+	return "Nulls: grey open markers on dotted lines (circles for the first two, in two greys, then squares, triangles, pluses and crosses" + spokes +
+		"), at their full-sample scores, without bars and not shifted."
+}
 
 // nullGapBarsCaption reads the model-minus-null figure's bars both ways
 // (a bar wholly below 0 is as much a finding as one above) and says that

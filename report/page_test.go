@@ -14,7 +14,7 @@ var update = flag.Bool("update", false, "rewrite the golden pages in testdata/pa
 // goldenPage is a Results and the methods text shown with it.
 type goldenPage struct {
 	r       *Results
-	methods string
+	methods methodsDoc
 }
 
 // goldenPages are the Results whose report.html is kept in testdata/page,
@@ -22,7 +22,8 @@ type goldenPage struct {
 func goldenPages(t *testing.T) map[string]goldenPage {
 	t.Helper()
 	// Text that needs escaping wherever a string reaches the page: in
-	// text, in <title>, in a table cell, in the methods <pre>.
+	// text, in <title>, in a table cell, in the methods text's heading,
+	// paragraph and list.
 	r := analyzedSample(t)
 	bad := `<b>&amp; "q" 'a' +1 </script><!--`
 	r.Software.Name = bad
@@ -42,7 +43,8 @@ func goldenPages(t *testing.T) map[string]goldenPage {
 	s.Rankings, s.Decompositions, s.Chains, s.AboveNull = nil, nil, nil, nil
 	s.SkippedExtents, s.Unscored, s.Warnings, bare.Warnings = nil, nil, nil, nil
 	s.Independence.Defined = false
-	return map[string]goldenPage{"escapes": {r, bad + "\nmethods + more"}, "bare": {bare, ""}}
+	methods := methodsDoc{Title: bad, Intro: bad, Sections: []textSection{{Heading: bad, Paragraphs: []string{"methods + more"}, List: []string{bad}}}}
+	return map[string]goldenPage{"escapes": {r, methods}, "bare": {bare, methodsDoc{}}}
 }
 
 // TestPageGolden compares report.html with the golden pages byte for byte.

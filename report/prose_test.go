@@ -528,7 +528,7 @@ func TestAnalysisNotesNothingToCompare(t *testing.T) {
 			r := loadSample(t)
 			c.build(r)
 			analyzed(t, r)
-			page, err := htmlPage(r, nil, "")
+			page, err := htmlPage(r, nil, methodsDoc{})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -1010,7 +1010,7 @@ func TestTinyNullGapNotPrintedAsZero(t *testing.T) {
 func TestTermsNameWhatThePageHolds(t *testing.T) {
 	page := func(r *Results) string {
 		t.Helper()
-		b, err := htmlPage(r, nil, "")
+		b, err := htmlPage(r, nil, methodsDoc{})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -57,7 +57,7 @@ func TestTermsNullAndUnweighted(t *testing.T) {
 			r.Models[i].NullKind = NullRaster
 		}
 	}
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -170,7 +170,7 @@ func TestKendallWReadsPointEstimates(t *testing.T) {
 		[]string{"every extent orders the models' point estimates as e1 does; see the paired model differences for whether that order is beyond noise."},
 		[]string{"orders the models as"})
 	r := analyzedSample(t)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -877,7 +877,7 @@ func TestPageHeaderOneExtent(t *testing.T) {
 	r := loadSample(t)
 	onlyExtents(r, "base")
 	analyzed(t, r)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -950,7 +950,7 @@ func TestOmittedNoteFollowsTheMaps(t *testing.T) {
 			r.Preview = nil
 		}
 		analyzed(t, r)
-		page, err := htmlPage(r, nil, "")
+		page, err := htmlPage(r, nil, methodsDoc{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -1299,7 +1299,7 @@ func TestNullCaptions(t *testing.T) {
 func TestVerdictMultiplicity(t *testing.T) {
 	r := analyzedSample(t)
 	checkWords(t, "methods", methodsText(r), []string{"was not judged, and the intervals were not adjusted for the number of extents compared."}, nil)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1360,7 +1360,7 @@ func TestKendallWUndefinedSaysWhy(t *testing.T) {
 // are half-size only when --fraction is 0.5.
 func TestExplorerPartialROCLabel(t *testing.T) {
 	r := analyzedSample(t)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1369,7 +1369,7 @@ func TestExplorerPartialROCLabel(t *testing.T) {
 	// Another --fraction is not the published bootstrap: the explorer
 	// called it that whatever the fraction.
 	r.Settings.ResampleFraction = 0.3
-	page, err = htmlPage(r, nil, "")
+	page, err = htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1444,7 +1444,7 @@ func TestTenPointCutoffOurs(t *testing.T) {
 		}
 	}
 	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged"}, nil)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1567,13 +1567,13 @@ func TestPageReferenceExtent(t *testing.T) {
 		}
 	}
 	s := analyzed(t, r)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	checkWords(t, "page", string(page), []string{"<h3>Difference from the reference extent</h3>",
 		"minus the score on " + s.BaseExtent + ", in place of the base extent base (left out: "}, []string{"Difference from the base extent"})
-	plain, err := htmlPage(analyzedSample(t), nil, "")
+	plain, err := htmlPage(analyzedSample(t), nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1696,7 +1696,7 @@ func TestReplyAnswersTheQuestion(t *testing.T) {
 func TestPageSaysWhatItShows(t *testing.T) {
 	r := withNull(t)
 	s := analyzed(t, r)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -1762,7 +1762,7 @@ func TestTermsSection(t *testing.T) {
 	}{{"with null", withNull(t), true}, {"without null", loadSample(t), false}} {
 		t.Run(c.name, func(t *testing.T) {
 			analyzed(t, c.r)
-			page, err := htmlPage(c.r, nil, "")
+			page, err := htmlPage(c.r, nil, methodsDoc{})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -279,7 +279,7 @@ func TestNoExtentScoredReferenceWords(t *testing.T) {
 	// Nothing scored: the methods say so rather than define verdicts and
 	// paired differences that were not made (TestMethodsOneExtentClaimsNoComparison).
 	checkWords(t, "methods", methodsText(r), []string{"No model could be scored on any extent, so no score was compared or judged."}, append(bad, "were taken on the test records", "We call a score robust"))
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -382,7 +382,7 @@ func TestOneResampleWords(t *testing.T) {
 	analyzed(t, r)
 	bad := []string{"1 resamples", "1 full-size resamples", "1 bootstrap draws"}
 	checkWords(t, "methods", methodsText(r), []string{"of 1 resample of 50%", "from 1 full-size resample of the test records"}, bad)
-	page, err := htmlPage(r, nil, "")
+	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -29,10 +29,10 @@ func Write(dir string, r *Results) error {
 	} else if !st.IsDir() {
 		return fmt.Errorf("report: output %s is not a folder", dir)
 	}
-	methods := methodsText(r)
+	methods := methodsOf(r)
 	methodsErr := make(chan error, 1)
 	go func() {
-		methodsErr <- recovered("methods.md", func() error { return writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods)) })
+		methodsErr <- recovered("methods.md", func() error { return writeAtomic(filepath.Join(dir, "methods.md"), []byte(methods.markdown())) })
 	}()
 	figs := figures(r)
 	err := writeFigures(filepath.Join(dir, "figures"), figs, func(rendered []renderedFigure) error {

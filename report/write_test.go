@@ -436,11 +436,11 @@ func TestSpliceSVGs(t *testing.T) {
 		}
 		figs = append(figs, renderedFigure{fig: f, svg: svg})
 	}
-	got, err := htmlPage(r, figs, "methods")
+	got, err := htmlPage(r, figs, methodsDoc{Intro: "methods"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	v, err := newPageView(r, figs, "methods", func(i int) template.HTML {
+	v, err := newPageView(r, figs, methodsDoc{Intro: "methods"}, func(i int) template.HTML {
 		return template.HTML(appendInlineSVG(nil, figs[i].svg, "fig-"+figs[i].fig.Name, figs[i].fig.Title, figs[i].fig.W))
 	})
 	if err != nil {
