@@ -589,6 +589,39 @@ var references = []string{
 	student1908,
 }
 
+// randomTestCount says on how many of the extents where model's partial
+// ROC ratio at e was tested against random (PartialROC.PRandom) it lay
+// above (p below randomPCutoff), or "" where it was tested on none.
+func randomTestCount(r *Results, model string, e float64) string {
+	tested, above := 0, 0
+	for _, sc := range r.Scores {
+		if sc.Model != model || !sc.Scored {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			if pr.E == e && pr.Defined && pr.PRandom > 0 {
+				tested++
+				if pr.PRandom < randomPCutoff {
+					above++
+				}
+			}
+		}
+	}
+	const random = "that of as many test records drawn at random over the extent's area"
+	switch {
+	case tested == 0:
+		return ""
+	case tested == 1:
+		verb := "above"
+		if above == 0 {
+			verb = "not above"
+		}
+		return fmt.Sprintf(", and %s %s on the one extent where it was tested (one-sided p below %s, our cut-off)", verb, random, fmtG(randomPCutoff))
+	}
+	return fmt.Sprintf(", and above %s on %d of the %d extents where it was tested (one-sided p below %s, our cut-off; each extent tested on its own, not adjusted for their number)",
+		random, above, tested, fmtG(randomPCutoff))
+}
+
 // student1908 is cited for the t interval of the paired AUC differences.
 const student1908 = "Student (1908) The probable error of a mean. Biometrika 6: 1-25."
 
@@ -622,6 +655,7 @@ func resultNumbers(r *Results) string {
 			if pv := s.findModelVerdict(MetricKeyPartialROC(r.Settings.E[0]), m); pv != nil {
 				t += fmt.Sprintf("; its partial ROC ratio at E = %s was %s", fmtG(r.Settings.E[0]), verdictPhrase(pv))
 			}
+			t += randomTestCount(r, m, r.Settings.E[0])
 		}
 		parts = append(parts, t)
 	}

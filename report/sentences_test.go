@@ -2280,6 +2280,21 @@ func TestPublishedPCaution(t *testing.T) {
 		"as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (200 draws; Davison & Hinkley 1997)"}, nil)
 	r.Scores[0].PartialROC[0].PRandom = 0.0123
 	r.Scores[1].PartialROC[0].PRandomNote = "a reason"
+	// The methods' results count the extents where a model's ratio was
+	// tested and lay above random: the sample's first score alone has a
+	// p (0.0123 < 0.025), so the one extent, above (counted by hand);
+	// with a second p of 0.3, 1 of 2.
+	checkWords(t, "methods results", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on the one extent where it was tested (one-sided p below 0.025, our cut-off)"}, nil)
+	second := -1
+	for i := range r.Scores {
+		if i > 0 && r.Scores[i].Model == r.Scores[0].Model && r.Scores[i].Scored {
+			second = i
+			break
+		}
+	}
+	r.Scores[second].PartialROC[0].PRandom = 0.3
+	checkWords(t, "methods results", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on 1 of the 2 extents where it was tested (one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"}, nil)
+	r.Scores[second].PartialROC[0].PRandom = 0
 	_, page := writtenPage(t, r)
 	checkWords(t, "table", page, []string{">0.012<", "not computed: a reason"}, nil)
 	checkWords(t, "report page", page, []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
