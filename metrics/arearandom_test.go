@@ -172,19 +172,7 @@ func TestAreaRandomModels(t *testing.T) {
 // TestAreaRandomPower: a model that ranks the test points well gets a
 // small p; the same study scored twice gives the same p (seeded draws).
 func TestAreaRandomPower(t *testing.T) {
-	rng := rand.New(rand.NewPCG(21, 22))
-	vals := make([]float64, 10000)
-	for i := range vals {
-		vals[i] = rng.Float64()
-	}
-	lay, err := NewLayout(vals, 256)
-	if err != nil {
-		t.Fatal(err)
-	}
-	acc := lay.NewAccumulator()
-	for _, v := range vals {
-		acc.Add(v, 1)
-	}
+	vals, acc := uniformCells(t, rand.New(rand.NewPCG(21, 22)), 10000)
 	// Test points among the top half of the values.
 	var test []float64
 	for _, v := range vals {
@@ -208,4 +196,25 @@ func TestAreaRandomPower(t *testing.T) {
 	if b.PartialROC[0].PRandom != pa.PRandom {
 		t.Errorf("p_random %g then %g on the same study and seed", pa.PRandom, b.PartialROC[0].PRandom)
 	}
+}
+
+// uniformCells is a landscape of cells of equal area with distinct values
+// drawn uniformly from rng (a model that knows nothing, for test points
+// drawn at random over the area): the values and their accumulator, on a
+// layout of every value.
+func uniformCells(t *testing.T, rng *rand.Rand, cells int) ([]float64, *Accumulator) {
+	t.Helper()
+	vals := make([]float64, cells)
+	for i := range vals {
+		vals[i] = rng.Float64()
+	}
+	lay, err := NewLayout(vals, 256)
+	if err != nil {
+		t.Fatal(err)
+	}
+	acc := lay.NewAccumulator()
+	for _, v := range vals {
+		acc.Add(v, 1)
+	}
+	return vals, acc
 }

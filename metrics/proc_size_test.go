@@ -44,18 +44,7 @@ import (
 func TestPublishedBootstrapSize(t *testing.T) {
 	const cells = 20000
 	rng := rand.New(rand.NewPCG(20261205, 7))
-	vals := make([]float64, cells)
-	for i := range vals {
-		vals[i] = rng.Float64()
-	}
-	lay, err := NewLayout(vals, 256)
-	if err != nil {
-		t.Fatal(err)
-	}
-	acc := lay.NewAccumulator()
-	for _, v := range vals {
-		acc.Add(v, 1)
-	}
+	vals, acc := uniformCells(t, rng, cells)
 	reps := 400
 	if testing.Short() {
 		reps = 100

@@ -83,14 +83,8 @@ const weirdEscaped = "a\\<b>\\*c\\*\\_d\\_\\`e\\`\\[f\\](g)\\|h\\&amp;\\~i\\~\\\
 // (before, it was written raw: "<b>" read as a tag, "*c*" as emphasis),
 // while the report page's sentences keep the name as it is.
 func TestMethodsMarkdownEscaped(t *testing.T) {
-	r := loadSample(t)
-	data, err := json.Marshal(r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	name, _ := json.Marshal(weirdName)
-	data = []byte(strings.ReplaceAll(string(data), `"good"`, string(name)))
-	r = &Results{}
+	data := sampleRenamed(t, weirdName)
+	r := &Results{}
 	if err := json.Unmarshal(data, r); err != nil {
 		t.Fatal(err)
 	}
@@ -148,14 +142,7 @@ func TestSummaryMethodsMarkdownEscaped(t *testing.T) {
 // HTML, never read as a tag, an entity or emphasis), the headings as
 // headings and the references as a list, with no Markdown marks left.
 func TestPageMethodsShowNames(t *testing.T) {
-	r := loadSample(t)
-	data, err := json.Marshal(r)
-	if err != nil {
-		t.Fatal(err)
-	}
-	name, _ := json.Marshal(weirdName)
-	data = []byte(strings.ReplaceAll(string(data), `"good"`, string(name)))
-	r = analyzedJSON(t, data)
+	r := analyzedJSON(t, sampleRenamed(t, weirdName))
 	dir := t.TempDir()
 	if err := Write(dir, r); err != nil {
 		t.Fatal(err)
@@ -195,4 +182,16 @@ func TestPageMethodsShowNames(t *testing.T) {
 			t.Errorf("methods section lacks %q", h)
 		}
 	}
+}
+
+// sampleRenamed is the sample's results.json text with its model "good"
+// renamed name.
+func sampleRenamed(t *testing.T, name string) []byte {
+	t.Helper()
+	data, err := json.Marshal(loadSample(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	quoted, _ := json.Marshal(name)
+	return []byte(strings.ReplaceAll(string(data), `"good"`, string(quoted)))
 }
