@@ -3,6 +3,8 @@ package metrics
 import (
 	"math"
 	"math/rand/v2"
+	"sort"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -217,4 +219,45 @@ func uniformCells(t *testing.T, rng *rand.Rand, cells int) ([]float64, *Accumula
 		acc.Add(v, 1)
 	}
 	return vals, acc
+}
+
+// TestAreaRandomNullNumpy: the ratios of areasweep's draws of random test
+// points on a continuous area (drawRatios, as sharedRatios uses it) follow
+// the distribution an independent numpy computation gives
+// (testdata/metrics/random_null.py: 100,000 draws each of n uniform
+// shares and the step curve's ratio; its 5th to 95th percentiles in
+// random_null_golden.csv): at each reference percentile q_p the share of
+// 4,000 of our draws at or below q_p is within 0.03 of p (our tolerance:
+// about four binomial SEs of 4,000 draws, the reference's own noise
+// negligible), for n = 20, 50, 200 and E = 0.05, 0.1.
+func TestAreaRandomNullNumpy(t *testing.T) {
+	rows := readGoldenCSV(t, "random_null_golden.csv")
+	if len(rows) < 2 || rows[0][0] != "n" || len(rows[0]) != 21 {
+		t.Fatalf("random_null_golden.csv: header %v", rows[0])
+	}
+	for _, r := range rows[1:] {
+		n, err := strconv.Atoi(r[0])
+		if err != nil {
+			t.Fatal(err)
+		}
+		e, err := strconv.ParseFloat(r[1], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ours := drawRatios(areaModel{}, n, 4000, 77, []float64{e})[0]
+		if len(ours) != 4000 {
+			t.Fatalf("n %d, E %g: %d of 4000 draws formed a ratio, want all (continuous values)", n, e, len(ours))
+		}
+		for k, cell := range r[2:] {
+			q, err := strconv.ParseFloat(cell, 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			p := float64(5*(k+1)) / 100
+			got := float64(sort.SearchFloat64s(ours, math.Nextafter(q, math.Inf(1)))) / float64(len(ours))
+			if math.Abs(got-p) > 0.03 {
+				t.Errorf("n %d, E %g: %.3f of our draws at or below numpy's %g-quantile %g, want %g ± 0.03", n, e, got, p, q, p)
+			}
+		}
+	}
 }

@@ -6,4 +6,5 @@
 set -eu
 cd "$(dirname "$0")"
 /usr/bin/python3 golden.py
+/usr/bin/python3 random_null.py
 Rscript golden.R
