@@ -60,6 +60,9 @@ func preflight(o *Options) error {
 	if err := outdir.TildeError("--out", o.Out); err != nil {
 		return err
 	}
+	if err := outPathError(o); err != nil {
+		return fault.BadInput(err)
+	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
 		if err := extent.CheckSetup(); err != nil {
 			return fault.BadInput(err)
@@ -69,6 +72,26 @@ func preflight(o *Options) error {
 		if err := report.CheckTempDir(); err != nil {
 			return fmt.Errorf("%w; no study ran", err)
 		}
+	}
+	return nil
+}
+
+// outPathError refuses an --out that no study folder could be made in,
+// before anything is made: a path holding a line break (run refuses it
+// as each study's --out, so every study failed after --out was made and
+// the summary was written there), and with --slurm one holding a tab (the
+// manifest's separator) or a backslash, which sbatch drops from the job
+// logs' path (slurm.Plan refuses both).
+func outPathError(o *Options) error {
+	abs, err := filepath.Abs(o.Out)
+	if err != nil {
+		abs = o.Out
+	}
+	if strings.ContainsAny(abs, "\n\r") {
+		return outdir.LineBreakError("--out", o.Out, abs)
+	}
+	if o.Slurm.Enabled && strings.ContainsAny(abs, "\t\\") {
+		return fmt.Errorf("--out %s: with --slurm its path cannot hold a tab or a backslash (the task manifest separates its fields with tabs, and sbatch drops a backslash from the job logs' path); choose a folder whose path has neither", o.Out)
 	}
 	return nil
 }

@@ -187,6 +187,8 @@ func (p *Plan) check() error {
 		return bad("job name %q: use 1 to 64 letters, digits, '_', '-' or '.'", p.Name)
 	case !filepath.IsAbs(p.Dir):
 		return bad("folder %q must be absolute", p.Dir)
+	case strings.ContainsAny(p.Dir, "\\\t\n\r"):
+		return bad("folder %q holds a backslash, a tab or a line break, which a job's log path cannot hold (sbatch drops a backslash, and ends a #SBATCH line at a line break)", p.Dir)
 	case len(p.Tasks) == 0:
 		return bad("no tasks")
 	case strings.TrimSpace(p.TaskCommand) == "":
@@ -265,6 +267,31 @@ func writeAtomic(path string, data []byte, mode os.FileMode) error {
 	return nil
 }
 
+// logPattern is the value of a #SBATCH --output line for the log file
+// pattern file (task-%a.log) in folder dir, in sbatch's own quoting:
+// sbatch reads a #SBATCH line itself, not through a shell, and splits it
+// at blanks, takes double and single quotes as quotes and an unquoted '#' as the
+// start of a comment, so a folder "SDM runs" made the submission fail
+// ("Invalid directive found in batch script: runs/..."). Each run of
+// characters without '"' goes in double quotes and each '"' in single
+// quotes (quoted parts next to each other join, as in a shell). sbatch
+// then reads %a, %j ... in the whole path as its file name symbols, so a
+// '%' of the folder is written %%. A backslash cannot be written (sbatch
+// drops it): Plan.check refuses a folder holding one.
+func logPattern(dir, file string) string {
+	path := strings.ReplaceAll(dir, "%", "%%") + "/" + file
+	var b strings.Builder
+	for i, part := range strings.Split(path, `"`) {
+		if i > 0 {
+			b.WriteString(`'"'`)
+		}
+		if part != "" {
+			b.WriteString(`"` + part + `"`)
+		}
+	}
+	return b.String()
+}
+
 // Quote returns s quoted for a POSIX shell.
 func Quote(s string) string { return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'" }
 
@@ -287,7 +314,7 @@ func (p *Plan) arrayScript(f Files) string {
 	var b strings.Builder
 	b.WriteString("#!/bin/bash\n")
 	fmt.Fprintf(&b, "#SBATCH --job-name=%s\n", p.Name)
-	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "task-%a.log"))
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", logPattern(f.Logs, "task-%a.log"))
 	p.resources(&b)
 	b.WriteString(`# Written by areasweep. One array task runs line $SLURM_ARRAY_TASK_ID of the
 # manifest; it is skipped when its output folder holds the marker, which is
@@ -353,7 +380,7 @@ func (p *Plan) mergeScript(f Files) string {
 	var b strings.Builder
 	b.WriteString("#!/bin/bash\n")
 	fmt.Fprintf(&b, "#SBATCH --job-name=%s-merge\n", p.Name)
-	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "merge-%j.log"))
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", logPattern(f.Logs, "merge-%j.log"))
 	p.resources(&b)
 	if p.MergeAfterAny {
 		b.WriteString("# Written by areasweep. Runs after every array task ended, failed or not (afterany).\nset -euo pipefail\n")

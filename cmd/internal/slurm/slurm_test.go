@@ -114,6 +114,8 @@ func TestPlanRefuses(t *testing.T) {
 		"partition":    func(p *Plan) { p.Partition = "a;b" },
 		"same out":     func(p *Plan) { p.Tasks[1].Out = p.Tasks[0].Out + "/" },
 		"bad shard":    func(p *Plan) { p.Tasks[0].Shard = 3 },
+		"backslash":    func(p *Plan) { p.Dir = `/scratch/a\b` },
+		"tab in dir":   func(p *Plan) { p.Dir = "/scratch/a\tb" },
 	}
 	for name, edit := range cases {
 		p := testPlan(dir, 2, "true")
