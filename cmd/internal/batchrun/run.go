@@ -43,7 +43,7 @@ func Run(ctx context.Context, o *Options, w IO) error {
 		return err
 	}
 	if o.Slurm.Enabled {
-		return runSlurm(ctx, o, w.Out, studies)
+		return runSlurm(ctx, o, w, studies)
 	}
 	return runLocal(ctx, o, w, studies)
 }

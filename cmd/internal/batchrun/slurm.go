@@ -19,6 +19,7 @@ import (
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/slurm"
 	"areasweep/report"
+	"areasweep/report/outfile"
 )
 
 // clientsPresent checks, before anything is written, that the SLURM
@@ -116,8 +117,23 @@ func slurmMissing(studies []*study) error {
 }
 
 // runSlurm writes the plan and, with --submit, submits the unfinished
-// tasks and the merge job; it prints to w what it wrote and did.
-func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) error {
+// tasks and the merge job; it prints to w.Out what it wrote and did.
+// Before it submits, it refuses while the jobs of the batch's previous
+// submission are still queued (queuedBefore); after, it records the new
+// jobs (recordSubmitted), and a stop signal's message says that they keep
+// running.
+func runSlurm(ctx context.Context, o *Options, streams IO, studies []*study) error {
+	w := streams.Out
+	note := func(string) func() { return func() {} }
+	if streams.StopNote != nil {
+		note = streams.StopNote
+	}
+	defer note("the job files written so far are in " + slurmDir(o.Out) + "; nothing was submitted")()
+	if o.Slurm.Submit {
+		if err := queuedBefore(ctx, o); err != nil {
+			return err
+		}
+	}
 	p, err := slurmPlan(o, studies)
 	if err != nil {
 		return err
@@ -151,7 +167,9 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		}
 		return nil
 	}
+	defer note("the job files are in " + slurmDir(o.Out) + "; a job sbatch accepted before the signal is in the queue (squeue shows it) and runs: see squeue before running this command again")()
 	sub, err := (slurm.Submitter{}).Submit(ctx, p, files, pending)
+	recordSubmitted(o, sub)
 	if err != nil {
 		return submitFailed(err, sub, files)
 	}
@@ -159,6 +177,7 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		fmt.Fprintf(w, "submitted array job %s (tasks %s)\n", sub.ArrayJob, slurm.ArraySpec(sub.Tasks, 0))
 	}
 	fmt.Fprintf(w, "submitted merge job %s; the summary will be %s\n", sub.MergeJob, filepath.Join(o.Out, "summary.html"))
+	defer note(keepRunning(o, sub))()
 	if !o.Slurm.Wait {
 		return nil
 	}
@@ -166,6 +185,82 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		return err
 	}
 	return waited(o, w, studies, files.Logs, staleIDs, unreadableIDs)
+}
+
+// submittedPath is the file that records the jobs of the batch's last
+// submission, one id per line.
+func submittedPath(out string) string { return filepath.Join(slurmDir(out), "submitted") }
+
+// submittedJobs are the ids of the jobs sub holds: the array's, then the
+// merge job's.
+func submittedJobs(sub slurm.Submission) []string {
+	var ids []string
+	for _, j := range []string{sub.ArrayJob, sub.MergeJob} {
+		if j != "" {
+			ids = append(ids, j)
+		}
+	}
+	return ids
+}
+
+// recordSubmitted records the jobs of sub, when sbatch accepted any, so
+// that the next --submit can tell whether they are still queued. Best
+// effort: without the record that check is not made.
+func recordSubmitted(o *Options, sub slurm.Submission) {
+	if ids := submittedJobs(sub); len(ids) > 0 {
+		outfile.Write(submittedPath(o.Out), []byte(strings.Join(ids, "\n")+"\n"), 0o666)
+	}
+}
+
+// queuedBefore refuses to submit while a job of the batch's previous
+// submission (recordSubmitted) is still in the queue: its unfinished
+// tasks would be submitted a second time, to run beside the queued ones
+// into the same folders, and a second merge job with them. Without a
+// record, or without squeue on PATH to ask, nothing is refused.
+func queuedBefore(ctx context.Context, o *Options) error {
+	b, err := os.ReadFile(submittedPath(o.Out))
+	if err != nil {
+		return nil
+	}
+	var ids []string
+	for _, id := range strings.Fields(string(b)) {
+		if jobIDRE.MatchString(id) {
+			ids = append(ids, id)
+		}
+	}
+	if _, err := exec.LookPath("squeue"); err != nil || len(ids) == 0 {
+		return nil
+	}
+	queued, err := (slurm.Submitter{}).Queued(ctx, ids...)
+	if err != nil {
+		return fmt.Errorf("cannot tell whether the jobs %s of this batch's previous submission are still queued (%w); nothing was submitted", strings.Join(ids, ", "), err)
+	}
+	if len(queued) == 0 {
+		return nil
+	}
+	what := "job " + queued[0] + " of this batch's previous submission is"
+	if len(queued) > 1 {
+		what = "jobs " + strings.Join(queued[:len(queued)-1], ", ") + " and " + queued[len(queued)-1] + " of this batch's previous submission are"
+	}
+	return fault.BadInput(fmt.Errorf("%s still in the SLURM queue (squeue -j %s shows them): submitting now would submit the unfinished tasks a second time, to run beside the queued ones; wait until they have left the queue, or cancel them (scancel %s), then run this command again; nothing was written or submitted",
+		what, strings.Join(queued, ","), strings.Join(queued, " ")))
+}
+
+var jobIDRE = regexp.MustCompile(`^[0-9]+$`)
+
+// keepRunning is what a stop signal's message says once jobs were
+// submitted: they keep running and writing into --out.
+func keepRunning(o *Options, sub slurm.Submission) string {
+	var named []string
+	if sub.ArrayJob != "" {
+		named = append(named, "array job "+sub.ArrayJob)
+	}
+	if sub.MergeJob != "" {
+		named = append(named, "merge job "+sub.MergeJob)
+	}
+	ids := submittedJobs(sub)
+	return fmt.Sprintf("the submitted jobs keep running on the cluster (%s: squeue -j %s shows them, scancel %s cancels them) and write into %s; running this command again while they are in the queue is refused",
+		strings.Join(named, ", "), strings.Join(ids, ","), strings.Join(ids, " "), o.Out)
 }
 
 // submitFailed says what a failed submission left and what to do. When

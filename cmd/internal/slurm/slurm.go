@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"os/exec"
+	"os/user"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -517,19 +518,12 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 		return nil
 	}
 	for {
-		cmd := exec.CommandContext(ctx, "squeue", "-h", "-o", "%i", "-j", strings.Join(ids, ","))
-		cmd.Env = s.Env
-		var stderr bytes.Buffer
-		cmd.Stderr = &stderr
-		out, err := cmd.Output()
+		queued, err := s.Queued(ctx, ids...)
 		switch {
-		case err == nil && strings.TrimSpace(string(out)) == "":
+		case err == nil && len(queued) == 0:
 			return nil
-		case err != nil && strings.Contains(stderr.String(), "Invalid job id"):
-			// squeue says so once the jobs have left the queue.
-			return nil
-		case err != nil && !isExit(err) && ctx.Err() == nil:
-			return fmt.Errorf("slurm: running squeue: %w", err)
+		case err != nil && ctx.Err() == nil:
+			return err
 		}
 		select {
 		case <-ctx.Done():
@@ -537,6 +531,48 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 		case <-time.After(interval):
 		}
 	}
+}
+
+// Queued returns the jobs of jobs (ids as sbatch gave them) that squeue
+// still lists, pending, running or completing: an array job counts while
+// any of its tasks is listed ("101_[2-3]", "101_4"). squeue's refusal of
+// an id the controller no longer knows ("Invalid job id") means that the
+// job left the queue; a squeue that exits with another complaint is
+// taken as the jobs still there (the next call asks again), one that
+// cannot run is an error.
+func (s Submitter) Queued(ctx context.Context, jobs ...string) ([]string, error) {
+	if len(jobs) == 0 {
+		return nil, nil
+	}
+	args := []string{"-h", "-o", "%i", "-j", strings.Join(jobs, ",")}
+	if u, err := user.Current(); err == nil && u.Username != "" {
+		args = append(args, "-u", u.Username) // this user's: an id may come round again for another's
+	}
+	cmd := exec.CommandContext(ctx, "squeue", args...)
+	cmd.Env = s.Env
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	out, err := cmd.Output()
+	switch {
+	case err != nil && isExit(err) && strings.Contains(stderr.String(), "Invalid job id"):
+		return nil, nil
+	case err != nil && isExit(err):
+		return jobs, nil
+	case err != nil:
+		return nil, fmt.Errorf("slurm: running squeue: %w", err)
+	}
+	listed := map[string]bool{}
+	for _, line := range strings.Fields(string(out)) {
+		id, _, _ := strings.Cut(line, "_")
+		listed[id] = true
+	}
+	var queued []string
+	for _, j := range jobs {
+		if listed[j] {
+			queued = append(queued, j)
+		}
+	}
+	return queued, nil
 }
 
 func isExit(err error) bool {
