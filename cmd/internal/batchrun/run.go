@@ -35,6 +35,11 @@ func Run(ctx context.Context, o *Options, w IO) error {
 		if err := slurmMissing(studies); err != nil {
 			return err
 		}
+		if o.Memory > 0 { // refused before anything is written
+			if _, err := taskMemoryMB(o, studies); err != nil {
+				return err
+			}
+		}
 	}
 	if err := o.Slurm.clientsPresent(); err != nil {
 		return fault.BadInput(err)

@@ -47,7 +47,7 @@ var jobNameUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
 // slurmPlan builds the plan of a batch: one task per study (the whole
 // study, shard 1/1) running this executable's batch command on that
 // study alone, and a merge job writing the summary; memory per task from
-// the largest study's estimate.
+// the largest study's estimate, or --memory (refused below that estimate).
 func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 	exe, err := os.Executable()
 	if err != nil {
@@ -67,7 +67,6 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 	}
 	p := &slurm.Plan{Name: name, Dir: slurmDir(out), CPUs: o.Slurm.CPUs, TimeLimit: o.Slurm.TimeLimit,
 		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true, CommandMakesOut: true}
-	var need int64
 	for _, st := range studies {
 		if o.Shards <= 1 {
 			p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: 1, Shards: 1, Out: st.dir})
@@ -76,15 +75,10 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 				p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: k, Shards: o.Shards, Out: shardDir(out, st.id, k)})
 			}
 		}
-		so := st.opts
-		so.Workers = o.Slurm.CPUs
-		// A study whose inputs cannot be read still gets its task: it
-		// fails there and the summary lists it.
-		if n, err := pipeline.Estimate(so); err == nil {
-			need = max(need, n)
-		}
 	}
-	p.MemoryMB = slurm.MemoryMB(need)
+	if p.MemoryMB, err = taskMemoryMB(o, studies); err != nil {
+		return nil, err
+	}
 	base := slurm.Quote(exe) + " batch " + slurm.Quote(table) + " --out " + slurm.Quote(out) + " --quiet"
 	if o.Force {
 		base += " --force"
@@ -97,6 +91,33 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 		p.MergeCommand = base + " --shards " + n + " --summary-only"
 	}
 	return p, nil
+}
+
+// taskMemoryMB is the memory each task asks for, in MiB: the largest
+// study's estimate with headroom (slurm.MemoryMB), or --memory, which is
+// refused below that estimate (a bad input), since each task's own run
+// would refuse it.
+func taskMemoryMB(o *Options, studies []*study) (int, error) {
+	var need int64
+	var needs string // the study of the largest need
+	for _, st := range studies {
+		so := st.opts
+		so.Workers = o.Slurm.CPUs
+		// A study whose inputs cannot be read still gets its task: it
+		// fails there and the summary lists it.
+		if n, err := pipeline.Estimate(so); err == nil && n > need {
+			need, needs = n, st.id
+		}
+	}
+	if o.Memory <= 0 {
+		return slurm.MemoryMB(need), nil
+	}
+	const mib = 1 << 20
+	if o.Memory < need {
+		return 0, fault.BadInput(fmt.Errorf("--memory is less than a task needs: study %s needs about %d MiB (its memory estimate, which its run checks), and with --slurm --memory is what each task asks for; give at least %dM, or leave --memory out to ask for the estimate plus headroom (%d MiB); nothing was written or submitted",
+			needs, (need+mib-1)/mib, (need+mib-1)/mib, slurm.MemoryMB(need)))
+	}
+	return int((o.Memory + mib - 1) / mib), nil // sbatch's unit, rounded up
 }
 
 // slurmMissing refuses a SLURM plan for a table with a missing input
