@@ -277,6 +277,10 @@ func (p *batchParser) add(line int, column, study string, err error) {
 // given line, column and study.
 func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) {
 	if !contains(studyKeys, key) {
+		if namesStudyFile(key) {
+			p.add(v.Line, key, study, fmt.Errorf("%w: %q is not a study key: %s as the row's keys (and those every study shares under settings:)", ErrBatchColumn, key, noStudyFile))
+			return
+		}
 		hint := ""
 		if s := closestKey(key); s != "" {
 			hint = fmt.Sprintf("did you mean %q? ", s)
@@ -294,6 +298,18 @@ func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) 
 			p.row[key] = true
 		}
 	}
+}
+
+// noStudyFile says, after "... is not a study key: ", that a table names
+// no study file, and how its keys are given instead.
+const noStudyFile = "a study table cannot name a study file; give the file's keys"
+
+// namesStudyFile reports whether a column or key (lower case) reads as a
+// study file's ("study", "study file", "study_file", "studyfile"): each
+// row naming its own, which a table does not do.
+func namesStudyFile(c string) bool {
+	c = strings.NewReplacer(" ", "", "-", "", "_", "").Replace(strings.ToLower(c))
+	return c == "study" || c == "studyfile" || c == "studyyaml"
 }
 
 // batchKeys are the study keys a table accepts.
@@ -586,6 +602,9 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 			continue
 		case c == "id":
 			p.add(line, c, "", fmt.Errorf("%w: id appears again in column %d", ErrBatchColumn, j+1))
+			ok = false
+		case namesStudyFile(c):
+			p.add(line, c, "", fmt.Errorf("%w: column %d %q is not a study key: %s as the row's columns (and those every study shares as the '# key: value' lines at the top)", ErrBatchColumn, j+1, rec[j], noStudyFile))
 			ok = false
 		case c == "out" || !contains(studyKeys, c):
 			hint := ""

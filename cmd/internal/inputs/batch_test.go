@@ -284,6 +284,12 @@ func TestBatchRefuses(t *testing.T) {
 		{"name twice in a cell", "id,model,occurrences,region\na,g=x;g=y,p,r\n", false, ErrBadValue, `the name "g" is given twice on this line`},
 		{"column twice", "id,model,occurrences,region,model\na,m=x,p,r,m=y\n", false, ErrBatchColumn, `columns 2 and 5 are both "model"; keep one of them`},
 		{"model and models", "id,model,models,occurrences,region\na,m=x,m=y,p,r\n", false, ErrBatchColumn, `columns 2 and 3 "model" and "models" both give "model"; keep one of them`},
+		// A column naming each row's study file was refused with the list
+		// of columns only, as if a typo (found by the batch audit of
+		// 2026-12-05): it says that a table cannot name one.
+		{"study column", "id,study\na,oak.yaml\n", false, ErrBatchColumn, `column 2 "study" is not a study key: a study table cannot name a study file; give the file's keys as the row's columns`},
+		{"study file column", "id,Study File\na,oak.yaml\n", false, ErrBatchColumn, "a study table cannot name a study file"},
+		{"yaml study key", "studies:\n  - id: a\n    study: oak.yaml\n", true, ErrBatchColumn, `"study" is not a study key: a study table cannot name a study file; give the file's keys as the row's keys (and those every study shares under settings:)`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
