@@ -836,8 +836,10 @@ lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 
 // rowHint explains a row with more cells than the header in a
 // comma-separated table by its likely cause: NAME=PATH items of one cell
-// separated by commas instead of ';', or a decimal comma (commaHint). In
-// a table delimited by semicolons, the ';' between a cell's items (two
+// separated by commas instead of ';', a decimal comma (commaHint) when
+// two neighbouring cells end and start with a digit (0,05 split in two),
+// else a cell holding a comma that needs double quotes (a path through a
+// folder "Smith, J"). In a table delimited by semicolons, the ';' between a cell's items (two
 // models, a list 20;50) splits the cell unless it is in double quotes.
 func rowHint(delim rune, rec []string, header int) string {
 	if delim == ';' && len(rec) > header {
@@ -855,5 +857,14 @@ func rowHint(delim rune, rec []string, header int) string {
 	if named >= 2 {
 		return ". Several NAME=PATH items in one cell are separated by ';' (gbm=a.tif;glm=b.tif): with ',' they fall into the next columns"
 	}
-	return commaHint(delim, len(rec), header)
+	for j := 1; j+1 < len(rec); j++ {
+		a, b := strings.TrimSpace(rec[j]), strings.TrimSpace(rec[j+1])
+		if a != "" && b != "" && isDigit(a[len(a)-1]) && isDigit(b[0]) && !strings.Contains(a, "/") {
+			return commaHint(delim, len(rec), header) // "0,05" split into 0 and 05
+		}
+	}
+	return `. A cell that holds a comma (a path such as "/data/Smith, J/m.tif") goes in double quotes, or else it falls into the next columns`
 }
+
+// isDigit reports whether c is an ASCII digit.
+func isDigit(c byte) bool { return '0' <= c && c <= '9' }

@@ -289,6 +289,12 @@ func TestBatchRefuses(t *testing.T) {
 		// 2026-12-05): it says that a table cannot name one.
 		{"study column", "id,study\na,oak.yaml\n", false, ErrBatchColumn, `column 2 "study" is not a study key: a study table cannot name a study file; give the file's keys as the row's columns`},
 		{"study file column", "id,Study File\na,oak.yaml\n", false, ErrBatchColumn, "a study table cannot name a study file"},
+		// A row with one cell too many: a decimal comma is named only
+		// where two cells split at it look like the halves of a number;
+		// a path holding a comma (a folder "Smith, J") is told to go in
+		// quotes (the comma hint was given for any extra cell).
+		{"decimal comma split", "id,model,occurrences,region,e\na,m=x,p,r,0,05\n", false, ErrBatchSyntax, "a decimal comma (12,5) splits a number in two"},
+		{"comma in a path", "id,model,occurrences,region\na,m=/data/Smith, J/m.tif,p,r\n", false, ErrBatchSyntax, `5 cells, the header has 4 columns; every row needs one cell per column (empty cells are allowed). A cell that holds a comma (a path such as "/data/Smith, J/m.tif") goes in double quotes`},
 		{"yaml study key", "studies:\n  - id: a\n    study: oak.yaml\n", true, ErrBatchColumn, `"study" is not a study key: a study table cannot name a study file; give the file's keys as the row's keys (and those every study shares under settings:)`},
 	}
 	for _, c := range cases {
