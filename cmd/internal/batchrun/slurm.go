@@ -134,6 +134,7 @@ func slurmMissing(studies []*study) error {
 	if len(missing) == 0 {
 		return nil
 	}
+	missing = mergeShared(missing) // a shared input missing: once, with its studies
 	return fault.BadInput(fmt.Errorf("%w\nnothing was written or submitted: fix the paths (or remove the rows), then run this command again", missing))
 }
 

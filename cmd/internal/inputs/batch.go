@@ -73,15 +73,43 @@ type BatchError struct {
 	Line   int
 	Column string
 	Study  string
-	Err    error
+	// Shared is true when the value at fault is a shared setting's, not
+	// the row's: Line is then the shared settings' line that gives it and
+	// Column its key, and Studies the studies it concerns (the rows that
+	// do not give their own value; Study is then empty).
+	Shared  bool
+	Studies []string
+	Err     error
 }
 
-// Error formats the error as `inputs: FILE line N, study "ID", column "C": message`.
+// Error formats the error as `inputs: FILE line N, study "ID", column "C": message`,
+// or for a shared setting `inputs: FILE line N (shared settings), key "C",
+// for studies a and b: message`.
 // A value refused as a study file's (ErrBadValue) reads "bad value: ...":
 // the table, not a study file, holds it.
 func (e *BatchError) Error() string {
 	s := located(e.File, e.Line, e.Study, "column", e.Column, e.Err)
+	if e.Shared {
+		s = located(fmt.Sprintf("%s line %d (shared settings), key %q, %s", e.File, e.Line, e.Column, forStudies(e.Studies)), 0, "", "", "", e.Err)
+	}
 	return strings.Replace(s, ": "+strings.TrimPrefix(ErrBadValue.Error(), "inputs: ")+": ", ": bad value: ", 1)
+}
+
+// maxStudiesNamed is how many studies a shared setting's problem names
+// (the rest are counted).
+const maxStudiesNamed = 5
+
+// forStudies is "for study a", "for studies a and b", "for studies a, b,
+// c, d, e and 7 more".
+func forStudies(ids []string) string {
+	switch n := len(ids); {
+	case n == 1:
+		return "for study " + ids[0]
+	case n <= maxStudiesNamed:
+		return "for studies " + strings.Join(ids[:n-1], ", ") + " and " + ids[n-1]
+	default:
+		return fmt.Sprintf("for studies %s and %d more", strings.Join(ids[:maxStudiesNamed], ", "), n-maxStudiesNamed)
+	}
 }
 
 // Unwrap returns the wrapped error.
@@ -149,6 +177,9 @@ type BatchStudy struct {
 	ID    string
 	Line  int
 	Study *Study
+	// SharedLines are the keys the row takes from the shared settings
+	// (it gives no value of its own), each with the line that sets it.
+	SharedLines map[string]int
 }
 
 // MaxBatchStudies caps the rows of a study table.
@@ -263,6 +294,8 @@ type batchParser struct {
 	row    map[string]bool
 	// bad marks, per study, a row with some problem.
 	bad []bool
+	// sharedLine is the line of each key of the shared settings.
+	sharedLine map[string]int
 }
 
 func (p *batchParser) add(line int, column, study string, err error) {
@@ -297,6 +330,13 @@ func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) 
 		if p.row != nil {
 			p.row[key] = true
 		}
+		return
+	}
+	if st == p.b.Shared {
+		if p.sharedLine == nil {
+			p.sharedLine = map[string]int{}
+		}
+		p.sharedLine[key] = v.Line
 	}
 }
 
@@ -745,6 +785,12 @@ func (p *batchParser) finish() {
 				p.add(s.Line, "id", s.ID, fmt.Errorf("%w: the id is already used on line %d (ids are compared ignoring case, as folder names on some systems); give each study its own id", ErrBatchID, first))
 			} else {
 				seen[low] = s.Line
+			}
+		}
+		s.SharedLines = map[string]int{}
+		for k := range *p.b.Shared {
+			if _, own := (*s.Study)[k]; !own && p.sharedLine[k] > 0 {
+				s.SharedLines[k] = p.sharedLine[k]
 			}
 		}
 		merged := overlay(p.b.Shared, s.Study)

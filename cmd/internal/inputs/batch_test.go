@@ -61,14 +61,23 @@ func wantBatch(dir string) []BatchStudy {
 	}
 }
 
+// sharedCSV and sharedYAML are the shared settings' keys each study of
+// batchCSV and batchYAML takes (it gives no value of its own), with the
+// line that sets each (worked by hand from the tables).
+var (
+	sharedCSV  = []map[string]int{{"iterations": 1, "region-buffers": 2, "seed": 3}, {"iterations": 1}}
+	sharedYAML = []map[string]int{{"iterations": 2, "region-buffers": 3, "seed": 4}, {"iterations": 2}}
+)
+
 func TestBatchCSVAndYAMLAgree(t *testing.T) {
 	dir := t.TempDir()
 	for _, c := range []struct {
 		file, text string
 		lines      []int
+		shared     []map[string]int // the shared settings' lines each row takes (worked by hand from the tables)
 	}{
-		{"studies.csv", batchCSV, []int{6, 8}},
-		{"studies.yaml", batchYAML, []int{6, 10}},
+		{"studies.csv", batchCSV, []int{6, 8}, sharedCSV},
+		{"studies.yaml", batchYAML, []int{6, 10}, sharedYAML},
 	} {
 		path := filepath.Join(dir, c.file)
 		if err := os.WriteFile(path, []byte(c.text), 0o644); err != nil {
@@ -80,7 +89,7 @@ func TestBatchCSVAndYAMLAgree(t *testing.T) {
 		}
 		want := wantBatch(dir)
 		for i := range want {
-			want[i].Line = c.lines[i]
+			want[i].Line, want[i].SharedLines = c.lines[i], c.shared[i]
 		}
 		if !reflect.DeepEqual(b.Studies, want) {
 			for i := range b.Studies {
@@ -103,9 +112,10 @@ func TestBatchCarriageReturns(t *testing.T) {
 	for _, c := range []struct {
 		name, text string
 		lines      []int
+		shared     []map[string]int
 	}{
-		{"mac.csv", batchCSV, []int{6, 8}},
-		{"mac.yaml", batchYAML, []int{6, 10}},
+		{"mac.csv", batchCSV, []int{6, 8}, sharedCSV},
+		{"mac.yaml", batchYAML, []int{6, 10}, sharedYAML},
 	} {
 		for _, end := range []string{"\r", "\r\n"} {
 			text := strings.ReplaceAll(c.text, "\n", end)
@@ -115,7 +125,7 @@ func TestBatchCarriageReturns(t *testing.T) {
 			}
 			want := wantBatch(dir)
 			for i := range want {
-				want[i].Line = c.lines[i]
+				want[i].Line, want[i].SharedLines = c.lines[i], c.shared[i]
 			}
 			b, err := LoadBatch(path)
 			if err != nil {
