@@ -15,7 +15,8 @@ import (
 // fakeSlurm puts an sbatch and a squeue on PATH that stand in for a
 // cluster: sbatch numbers its jobs from 101 (the count is in
 // dir/submitted), squeue prints the lines of dir/queue (the jobs "in the
-// queue", as squeue -h -o %i prints them). It returns dir.
+// queue", as squeue -h -o %i prints them), or, when dir/squeue_err
+// exists, prints it to standard error and exits 1. It returns dir.
 func fakeSlurm(t *testing.T) string {
 	t.Helper()
 	dir := t.TempDir()
@@ -30,6 +31,7 @@ echo "$n" >'` + dir + `/submitted'
 echo "$n"
 `
 	squeue := `#!/bin/sh
+if [ -f '` + dir + `/squeue_err' ]; then cat '` + dir + `/squeue_err' >&2; exit 1; fi
 cat '` + dir + `/queue' 2>/dev/null || true
 `
 	for name, body := range map[string]string{"sbatch": sbatch, "squeue": squeue} {
@@ -75,11 +77,26 @@ func TestSlurmResubmitWhileQueued(t *testing.T) {
 	if b, _ := os.ReadFile(filepath.Join(fake, "submitted")); strings.TrimSpace(string(b)) != "102" {
 		t.Errorf("sbatch ran again while the jobs were queued (last job %s)", b)
 	}
-	// Gone from the queue: the same command submits the unfinished tasks.
-	os.WriteFile(filepath.Join(fake, "queue"), nil, 0o644)
+	// squeue cannot reach the controller: not taken for jobs in the
+	// queue, but said, and nothing submitted.
+	os.WriteFile(filepath.Join(fake, "squeue_err"), []byte("slurm_load_jobs error: Unable to contact slurm controller (connect failure)\n"), 0o644)
+	so.Reset()
+	err = Run(context.Background(), o(), IO{Out: &so, ErrOut: &so})
+	if err == nil || fault.IsBadInput(err) || !strings.Contains(err.Error(), "cannot tell whether the jobs 101, 102 of this batch's previous submission are still queued") || !strings.Contains(err.Error(), "Unable to contact slurm controller") {
+		t.Fatalf("squeue failing: %v", err)
+	}
+	// squeue no longer knows them (purged): gone from the queue, and the
+	// same command submits the unfinished tasks.
+	os.WriteFile(filepath.Join(fake, "squeue_err"), []byte("slurm_load_jobs error: Invalid job id specified\n"), 0o644)
 	so.Reset()
 	if err := Run(context.Background(), o(), IO{Out: &so, ErrOut: &so}); err != nil || !strings.Contains(so.String(), "submitted array job 103") {
-		t.Fatalf("resubmission once the queue is empty: %v\n%s", err, so.String())
+		t.Fatalf("resubmission once the jobs left the queue: %v\n%s", err, so.String())
+	}
+	os.Remove(filepath.Join(fake, "squeue_err"))
+	os.WriteFile(filepath.Join(fake, "queue"), nil, 0o644)
+	so.Reset()
+	if err := Run(context.Background(), o(), IO{Out: &so, ErrOut: &so}); err != nil || !strings.Contains(so.String(), "submitted array job 105") {
+		t.Fatalf("resubmission with an empty queue: %v\n%s", err, so.String())
 	}
 }
 

@@ -522,8 +522,8 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 		switch {
 		case err == nil && len(queued) == 0:
 			return nil
-		case err != nil && ctx.Err() == nil:
-			return err
+		case err != nil && !isExit(err) && ctx.Err() == nil:
+			return err // squeue cannot run; one that answered with a complaint is asked again
 		}
 		select {
 		case <-ctx.Done():
@@ -537,9 +537,9 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 // still lists, pending, running or completing: an array job counts while
 // any of its tasks is listed ("101_[2-3]", "101_4"). squeue's refusal of
 // an id the controller no longer knows ("Invalid job id") means that the
-// job left the queue; a squeue that exits with another complaint is
-// taken as the jobs still there (the next call asks again), one that
-// cannot run is an error.
+// job left the queue; a squeue that exits with another complaint (the
+// controller cannot be reached) gives an error wrapping its
+// *exec.ExitError, with what it said, as does one that cannot run.
 func (s Submitter) Queued(ctx context.Context, jobs ...string) ([]string, error) {
 	if len(jobs) == 0 {
 		return nil, nil
@@ -557,7 +557,11 @@ func (s Submitter) Queued(ctx context.Context, jobs ...string) ([]string, error)
 	case err != nil && isExit(err) && strings.Contains(stderr.String(), "Invalid job id"):
 		return nil, nil
 	case err != nil && isExit(err):
-		return jobs, nil
+		msg := strings.TrimSpace(stderr.String())
+		if msg == "" {
+			msg = "no message"
+		}
+		return nil, fmt.Errorf("slurm: squeue -j %s: %s (%w)", strings.Join(jobs, ","), msg, err)
 	case err != nil:
 		return nil, fmt.Errorf("slurm: running squeue: %w", err)
 	}
