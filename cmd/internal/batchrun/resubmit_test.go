@@ -77,6 +77,20 @@ func TestSlurmResubmitWhileQueued(t *testing.T) {
 	if b, _ := os.ReadFile(filepath.Join(fake, "submitted")); strings.TrimSpace(string(b)) != "102" {
 		t.Errorf("sbatch ran again while the jobs were queued (last job %s)", b)
 	}
+	// Writing the job files alone (no --submit) is refused too: the
+	// queued tasks read their line of manifest.tsv when they start, and a
+	// table with a row added above would send them to other studies.
+	manifest := filepath.Join(out, OwnDir, "slurm", "manifest.tsv")
+	before, _ := os.ReadFile(manifest)
+	plan := o()
+	plan.Slurm.Submit = false
+	err = Run(context.Background(), plan, IO{Out: &so, ErrOut: &so})
+	if err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), "writing the job files now would change the manifest the queued tasks read") {
+		t.Fatalf("--slurm alone while queued: %v", err)
+	}
+	if after, _ := os.ReadFile(manifest); string(after) != string(before) {
+		t.Errorf("manifest.tsv rewritten while the jobs were queued")
+	}
 	// squeue cannot reach the controller: not taken for jobs in the
 	// queue, but said, and nothing submitted.
 	os.WriteFile(filepath.Join(fake, "squeue_err"), []byte("slurm_load_jobs error: Unable to contact slurm controller (connect failure)\n"), 0o644)

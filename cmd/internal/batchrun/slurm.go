@@ -140,7 +140,7 @@ func slurmMissing(studies []*study) error {
 
 // runSlurm writes the plan and, with --submit, submits the unfinished
 // tasks and the merge job; it prints to w.Out what it wrote and did.
-// Before it submits, it refuses while the jobs of the batch's previous
+// Before it writes, it refuses while the jobs of the batch's previous
 // submission are still queued (queuedBefore); after, it records the new
 // jobs (recordSubmitted), and a stop signal's message says that they keep
 // running.
@@ -151,10 +151,8 @@ func runSlurm(ctx context.Context, o *Options, streams IO, studies []*study) err
 		note = streams.StopNote
 	}
 	defer note("the job files written so far are in " + slurmDir(o.Out) + "; nothing was submitted")()
-	if o.Slurm.Submit {
-		if err := queuedBefore(ctx, o); err != nil {
-			return err
-		}
+	if err := queuedBefore(ctx, o); err != nil {
+		return err
 	}
 	p, err := slurmPlan(o, studies)
 	if err != nil {
@@ -237,8 +235,10 @@ func recordSubmitted(o *Options, sub slurm.Submission) {
 // queuedBefore refuses to submit while a job of the batch's previous
 // submission (recordSubmitted) is still in the queue: its unfinished
 // tasks would be submitted a second time, to run beside the queued ones
-// into the same folders, and a second merge job with them. Without a
-// record, or without squeue on PATH to ask, nothing is refused.
+// into the same folders, and a second merge job with them. Without
+// --submit it refuses too: the plan's files would be written again, and
+// a queued task reads its line of manifest.tsv only when it starts.
+// Without a record, or without squeue on PATH to ask, nothing is refused.
 func queuedBefore(ctx context.Context, o *Options) error {
 	b, err := os.ReadFile(submittedPath(o.Out))
 	if err != nil {
@@ -264,8 +264,12 @@ func queuedBefore(ctx context.Context, o *Options) error {
 	if len(queued) > 1 {
 		what = "jobs " + strings.Join(queued[:len(queued)-1], ", ") + " and " + queued[len(queued)-1] + " of this batch's previous submission are"
 	}
-	return fault.BadInput(fmt.Errorf("%s still in the SLURM queue (squeue -j %s shows them): submitting now would submit the unfinished tasks a second time, to run beside the queued ones; wait until they have left the queue, or cancel them (scancel %s), then run this command again; nothing was written or submitted",
-		what, strings.Join(queued, ","), strings.Join(queued, " ")))
+	why := "submitting now would submit the unfinished tasks a second time, to run beside the queued ones"
+	if !o.Slurm.Submit {
+		why = "writing the job files now would change the manifest the queued tasks read when they start (a row added or removed would send them to other studies)"
+	}
+	return fault.BadInput(fmt.Errorf("%s still in the SLURM queue (squeue -j %s shows them): %s; wait until they have left the queue, or cancel them (scancel %s), then run this command again; nothing was written or submitted",
+		what, strings.Join(queued, ","), why, strings.Join(queued, " ")))
 }
 
 var jobIDRE = regexp.MustCompile(`^[0-9]+$`)
