@@ -47,3 +47,28 @@ func TestBatchOutRefusedBeforeAnything(t *testing.T) {
 		t.Errorf("a local batch refused --out: %v", err)
 	}
 }
+
+// TestStudyFolderTooLongRefusedFirst: a study whose folder, --out/<id>,
+// has a path too long for the GeoPackages written in it ran only after
+// every other study, then failed (exit 1) advising "choose an --out with
+// a path 37 bytes shorter" (found by the batch audit of 2026-12-05: a
+// 64-character id under a 420-byte --out). It is now a problem of the
+// table, at the study's line and id, before anything runs.
+func TestStudyFolderTooLongRefusedFirst(t *testing.T) {
+	s := newSmallStudy(t)
+	table := filepath.Join(s.Dir, "long.csv")
+	id := strings.Repeat("a", 64)
+	writeFile(t, table, "# iterations: 30\nid,model,occurrences,region\n"+
+		id+",m=model.tif,occ.csv,region.geojson\nb,m=model.tif,occ.csv,region.geojson\n")
+	// --out of 420 bytes: study b's GeoPackages stay under SQLite's 504
+	// bytes (about 483), the 64-character id's pass them by 63 more.
+	base := filepath.Join(t.TempDir(), strings.Repeat("x", 200))
+	out := filepath.Join(base, strings.Repeat("y", 420-len(base)-1))
+	got, err := resolveProblems(t, &Options{Table: table, Out: out})
+	if want := id + "/id"; strings.Join(got, " ") != want {
+		t.Fatalf("problems %v, want %s\n%v", got, want, err)
+	}
+	if want := "its path is too long for the GeoPackage files written in it"; !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "shorten --out or the id") {
+		t.Errorf("message lacks %q and what to shorten:\n%v", want, err)
+	}
+}

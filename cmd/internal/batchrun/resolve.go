@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
@@ -92,6 +93,10 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	}
 	if col, err := inputInOut(&po, out); err != nil {
 		return nil, inputs.BatchErrors{bad(col, err)}
+	}
+	if err := outdir.LengthError(po.Out); err != nil {
+		// Run would refuse it only after the studies before it ran.
+		return nil, inputs.BatchErrors{bad("id", fmt.Errorf("%s; the study's folder is --out/<id>: shorten --out or the id", fault.UserText(err)))}
 	}
 	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
 	if col, err := missingInput(&po); err != nil {
