@@ -72,3 +72,25 @@ func TestStudyFolderTooLongRefusedFirst(t *testing.T) {
 		t.Errorf("message lacks %q and what to shorten:\n%v", want, err)
 	}
 }
+
+// TestSlurmTableFromPipeRefused: with --slurm every array task reads the
+// study table again by the path given, so a table given as a pipe or as
+// standard input (<(...), /dev/stdin) gave tasks that read nothing; it
+// is refused before anything is made (found by the batch audit of
+// 2026-12-05).
+func TestSlurmTableFromPipeRefused(t *testing.T) {
+	t.Chdir(t.TempDir())
+	o := &Options{Out: "runs", Table: "/dev/stdin"}
+	o.Slurm.Enabled = true
+	err := preflight(o)
+	if want := "study table /dev/stdin is a pipe or standard input"; err == nil || !fault.IsBadInput(err) || !strings.Contains(err.Error(), want) {
+		t.Fatalf("got %v, want a bad input with %q", err, want)
+	}
+	if ents, _ := os.ReadDir("."); len(ents) > 0 {
+		t.Errorf("made %s", ents[0].Name())
+	}
+	o.Slurm.Enabled = false
+	if err := preflight(o); err != nil && strings.Contains(err.Error(), "pipe") {
+		t.Errorf("a local batch refused a table from a pipe: %v", err)
+	}
+}

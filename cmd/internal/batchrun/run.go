@@ -86,7 +86,8 @@ func preflight(o *Options) error {
 // as each study's --out, so every study failed after --out was made and
 // the summary was written there), and with --slurm one holding a tab (the
 // manifest's separator) or a backslash, which sbatch drops from the job
-// logs' path (slurm.Plan refuses both).
+// logs' path (slurm.Plan refuses both); with --slurm also a study table
+// read from a pipe, which the array tasks could not read again.
 func outPathError(o *Options) error {
 	abs, err := filepath.Abs(o.Out)
 	if err != nil {
@@ -94,6 +95,9 @@ func outPathError(o *Options) error {
 	}
 	if strings.ContainsAny(abs, "\n\r") {
 		return outdir.LineBreakError("--out", o.Out, abs)
+	}
+	if o.Slurm.Enabled && inputs.StreamPath(o.Table) {
+		return fmt.Errorf("the study table %s is a pipe or standard input; with --slurm each array task reads the table again by its path: save it to a file and name that", o.Table)
 	}
 	if o.Slurm.Enabled && strings.ContainsAny(abs, "\t\\") {
 		return fmt.Errorf("--out %s: with --slurm its path cannot hold a tab or a backslash (the task manifest separates its fields with tabs, and sbatch drops a backslash from the job logs' path); choose a folder whose path has neither", o.Out)

@@ -222,13 +222,29 @@ func LoadBatch(path string) (*Batch, error) {
 	// The folder is made absolute, so that a study's recorded input paths
 	// (results.json) do not depend on how the table was named: a local
 	// batch and a scheduler task (which names the table absolutely) write
-	// the same bytes.
+	// the same bytes. A table read from a pipe or standard input has no
+	// folder of its own: its relative paths are taken from the current
+	// folder, as a study file's (they were joined to /dev/fd or /dev).
 	dir := filepath.Dir(path)
+	if st, err := f.Stat(); err == nil && !st.Mode().IsRegular() || isStreamPath(path) {
+		dir = "."
+	}
 	if abs, err := filepath.Abs(dir); err == nil {
 		dir = abs
 	}
 	ext := strings.ToLower(filepath.Ext(path))
 	return ParseBatch(data, path, dir, ext == ".yaml" || ext == ".yml")
+}
+
+// StreamPath reports whether path names a pipe or a process's open file
+// (/dev/stdin, /dev/fd/N, a shell's <(...), a named pipe) rather than a
+// file that can be read again by its name.
+func StreamPath(path string) bool {
+	if isStreamPath(path) {
+		return true
+	}
+	st, err := os.Stat(path)
+	return err == nil && st.Mode()&os.ModeNamedPipe != 0
 }
 
 // ParseBatch reads a study table from data; name is used in messages,

@@ -9,6 +9,7 @@ import (
 	"reflect"
 	"slices"
 	"strings"
+	"syscall"
 	"testing"
 	"unicode/utf8"
 )
@@ -417,6 +418,39 @@ func TestLoadBatchAbsolutePaths(t *testing.T) {
 		if m, _ := st["model"].([]string); len(m) != 1 || m[0] != "m="+filepath.Join(dir, "oak", "m.tif") {
 			t.Errorf("table named %s: model %v", name, st["model"])
 		}
+	}
+}
+
+// TestLoadBatchFromPipe: a table read from a pipe (areasweep batch
+// <(...) --out DIR, or /dev/stdin) had its relative paths joined to
+// /dev/fd or /dev, so every study failed with "/dev/fd/in/model.tif does
+// not exist" (found by the batch audit of 2026-12-05). As for a study
+// file read so, they are taken from the current folder, made absolute.
+func TestLoadBatchFromPipe(t *testing.T) {
+	wd := t.TempDir()
+	t.Chdir(wd)
+	fifo := filepath.Join(t.TempDir(), "table.csv")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	go func() {
+		f, err := os.OpenFile(fifo, os.O_WRONLY, 0)
+		if err != nil {
+			return
+		}
+		f.WriteString("id,model,occurrences,region\noak,m=in/m.tif,in/p.csv,/abs/r.gpkg\n")
+		f.Close()
+	}()
+	b, err := LoadBatch(fifo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := *b.Studies[0].Study
+	if st["occurrences"] != filepath.Join(wd, "in", "p.csv") || st["region"] != "/abs/r.gpkg" {
+		t.Errorf("occurrences %v, region %v; want them from the current folder %s", st["occurrences"], st["region"], wd)
+	}
+	if !StreamPath(fifo) || !StreamPath("/dev/stdin") || StreamPath(filepath.Join(wd)) {
+		t.Errorf("StreamPath: a pipe, /dev/stdin and a folder read %v, %v, %v", StreamPath(fifo), StreamPath("/dev/stdin"), StreamPath(wd))
 	}
 }
 
