@@ -15,6 +15,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/settings"
+	"areasweep/cmd/internal/slurm"
 )
 
 // BatchOptions runs every study of a study table: the command's streams,
@@ -200,6 +201,16 @@ func validateSlurm(o *batchrun.SlurmOptions, cpusGiven bool) error {
 		default:
 			return fmt.Errorf("%s set resources of the SLURM jobs and need --slurm; without it the studies run on this machine, --jobs at a time: add --slurm, or leave them out",
 				strings.Join(given[:len(given)-1], ", ")+" and "+given[len(given)-1])
+		}
+	}
+	if o.TimeLimit != "" {
+		if err := slurm.CheckTime(o.TimeLimit); err != nil {
+			return fmt.Errorf("--time %q: %w", o.TimeLimit, err)
+		}
+	}
+	if o.Partition != "" {
+		if err := slurm.CheckPartition(o.Partition); err != nil {
+			return fmt.Errorf("--partition %q: %w", o.Partition, err)
 		}
 	}
 	switch {

@@ -264,6 +264,11 @@ func TestBatchJobsWithSlurmRefused(t *testing.T) {
 		{[]string{"--slurm", "--jobs", "4"}, false, "--jobs sets how many studies this machine runs at once; with --slurm each array task runs one study: use --max-parallel 4"},
 		{[]string{"--slurm", "--jobs", "1"}, false, "--jobs sets how many studies"},
 		{[]string{"--slurm", "--memory", "8G"}, true, ""},
+		// A --time or --partition sbatch would not take made a bad
+		// plan, reported as a bug (exit 3) after --out was made.
+		{[]string{"--slurm", "--time", "2h"}, false, `--time "2h": write a time limit as sbatch takes it`},
+		{[]string{"--slurm", "--partition", "a b"}, false, `--partition "a b": `},
+		{[]string{"--slurm", "--time", "UNLIMITED", "--partition", "gpu,cpu"}, true, ""},
 	} {
 		checkBatchFlags(t, c.args, c.wantRun, c.want)
 	}

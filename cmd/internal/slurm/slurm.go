@@ -166,7 +166,33 @@ type Plan struct {
 }
 
 var jobNameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,64}$`)
-var timeRE = regexp.MustCompile(`^[0-9:\-]{1,20}$`)
+
+// timeRE holds sbatch's forms of a time limit: minutes, minutes:seconds,
+// hours:minutes:seconds, days-hours, days-hours:minutes,
+// days-hours:minutes:seconds, and UNLIMITED or INFINITE.
+var timeRE = regexp.MustCompile(`^([0-9]{1,9}(:[0-9]{1,2}){0,2}|[0-9]{1,6}-[0-9]{1,2}(:[0-9]{1,2}){0,2}|(?i:unlimited|infinite))$`)
+
+// partitionRE is a partition, or a list of them separated by commas
+// (sbatch runs the job on the first that can take it).
+var partitionRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]+(,[A-Za-z0-9_.\-]+)*$`)
+
+// CheckTime refuses a time limit sbatch's --time does not take.
+func CheckTime(s string) error {
+	if !timeRE.MatchString(s) {
+		return fmt.Errorf("write a time limit as sbatch takes it: minutes (90), hours:minutes:seconds (02:00:00), days-hours:minutes:seconds (1-12:00:00) or UNLIMITED")
+	}
+	return nil
+}
+
+// CheckPartition refuses a partition sbatch's --partition does not take:
+// a name of letters, digits, '_', '-' and '.', or several separated by
+// commas.
+func CheckPartition(s string) error {
+	if len(s) > 1024 || !partitionRE.MatchString(s) {
+		return fmt.Errorf("write a partition name (letters, digits, '_', '-' or '.'), or several separated by commas (gpu,cpu)")
+	}
+	return nil
+}
 
 // MemoryMB turns a memory estimate in bytes into the --mem figure of one
 // task: the estimate plus a quarter plus 256 MiB for the program itself,
@@ -198,10 +224,10 @@ func (p *Plan) check() error {
 		return bad("memory per task is %d MiB; give the estimate through MemoryMB", p.MemoryMB)
 	case p.CPUs < 1:
 		return bad("CPUs per task is %d, want at least 1", p.CPUs)
-	case p.TimeLimit != "" && !timeRE.MatchString(p.TimeLimit):
-		return bad("time limit %q: write for example 02:00:00 or 1-00:00:00", p.TimeLimit)
-	case p.Partition != "" && !jobNameRE.MatchString(p.Partition):
-		return bad("partition %q: use letters, digits, '_', '-' or '.'", p.Partition)
+	case p.TimeLimit != "" && CheckTime(p.TimeLimit) != nil:
+		return bad("time limit %q: %v", p.TimeLimit, CheckTime(p.TimeLimit))
+	case p.Partition != "" && CheckPartition(p.Partition) != nil:
+		return bad("partition %q: %v", p.Partition, CheckPartition(p.Partition))
 	case p.MaxParallel < 0:
 		return bad("at most %d tasks at once: want 0 (no limit) or more", p.MaxParallel)
 	}
