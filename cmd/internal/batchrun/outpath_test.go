@@ -1,6 +1,8 @@
 package batchrun
 
 import (
+	"context"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -92,5 +94,25 @@ func TestSlurmTableFromPipeRefused(t *testing.T) {
 	o.Slurm.Enabled = false
 	if err := preflight(o); err != nil && strings.Contains(err.Error(), "pipe") {
 		t.Errorf("a local batch refused a table from a pipe: %v", err)
+	}
+}
+
+// TestSlurmPlanWriteFailureNotABug: a job file that could not be written
+// (a full disk or quota on the cluster's scratch, a folder in its place)
+// was reported as "this is a bug in areasweep" (exit 3; found by the
+// batch audit of 2026-12-05). It is an outside failure (exit 1) naming
+// the file, with what to do.
+func TestSlurmPlanWriteFailureNotABug(t *testing.T) {
+	s := newSmallStudy(t)
+	table := batchTable(t, s)
+	out := filepath.Join(t.TempDir(), "runs")
+	if err := os.MkdirAll(filepath.Join(out, OwnDir, "slurm", "manifest.tsv"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	o := &Options{Table: table, Out: out, Jobs: 1, Shards: 1, Slurm: SlurmOptions{Enabled: true, CPUs: 1}}
+	err := Run(context.Background(), o, IO{Out: io.Discard, ErrOut: io.Discard})
+	want := "writing the SLURM job files into " + filepath.Join(out, OwnDir, "slurm") + " failed"
+	if err == nil || fault.IsInternal(err) || fault.IsBadInput(err) || !strings.Contains(err.Error(), want) {
+		t.Fatalf("got %v (internal %v), want an outside failure with %q", err, fault.IsInternal(err), want)
 	}
 }

@@ -16,6 +16,7 @@ import (
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/slurm"
 	"areasweep/report"
@@ -159,8 +160,16 @@ func runSlurm(ctx context.Context, o *Options, streams IO, studies []*study) err
 		return err
 	}
 	files, err := p.Write()
-	if err != nil {
-		return fault.Internal(err)
+	switch {
+	case errors.Is(err, slurm.ErrPlan), errors.Is(err, slurm.ErrManifest):
+		return fault.Internal(err) // the plan areasweep made is wrong
+	case err != nil:
+		// An outside failure: a full disk or quota, a folder in the way.
+		what := strings.TrimPrefix(err.Error(), "slurm: ") // names the file
+		if outdir.DiskFull(err) {
+			what += " (free some space on that disk)"
+		}
+		return fmt.Errorf("writing the SLURM job files into %s failed: %s; nothing was submitted: fix that, then run this command again", slurmDir(o.Out), what)
 	}
 	pending, stale, err := slurmPending(o, p, studies)
 	if err != nil {
