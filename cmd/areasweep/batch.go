@@ -15,6 +15,7 @@ import (
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/settings"
+	"areasweep/cmd/internal/slurm"
 )
 
 // BatchOptions runs every study of a study table: the command's streams,
@@ -26,6 +27,8 @@ type BatchOptions struct {
 	// cpusGiven says --cpus-per-task was given: its default, 1, cannot
 	// tell a value given without --slurm from none (validateSlurm).
 	cpusGiven bool
+	// jobsGiven says --jobs was given, which --slurm refuses.
+	jobsGiven bool
 	batchrun.Options
 }
 
@@ -97,6 +100,7 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 				opts.Memory = m
 			}
 			opts.cpusGiven = c.Flags().Changed("cpus-per-task")
+			opts.jobsGiven = c.Flags().Changed("jobs")
 			if err := opts.validate(); err != nil {
 				return fault.BadInput(err)
 			}
@@ -110,7 +114,7 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 	f := cmd.Flags()
 	f.StringVar(&opts.Out, "out", "", "output `DIR`: one folder per study, and the summary")
 	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each with all cores / N scoring workers; the results do not depend on it)")
-	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory)")
+	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory); with --slurm, the memory each task asks for (default: the largest study's estimate plus headroom)")
 	f.StringSliceVar(&opts.Only, "only", nil, "run only these study `IDS` (comma-separated) and write no summary; for scheduler tasks")
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
 	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
@@ -157,6 +161,9 @@ func (o *BatchOptions) validate() error {
 		return fmt.Errorf("--shard %d needs --only with one study and 1 <= I <= --shards (%d)", o.Shard, o.Shards)
 	case o.Slurm.Submit && !o.Slurm.Enabled:
 		return errors.New("--submit needs --slurm")
+	case o.Slurm.Enabled && o.jobsGiven:
+		// Ignored, it let every task of the array run at once.
+		return fmt.Errorf("--jobs sets how many studies this machine runs at once; with --slurm each array task runs one study: use --max-parallel %d to run at most %d tasks at once, or leave --jobs out", o.Jobs, o.Jobs)
 	}
 	return validateSlurm(&o.Slurm, o.cpusGiven)
 }
@@ -194,6 +201,16 @@ func validateSlurm(o *batchrun.SlurmOptions, cpusGiven bool) error {
 		default:
 			return fmt.Errorf("%s set resources of the SLURM jobs and need --slurm; without it the studies run on this machine, --jobs at a time: add --slurm, or leave them out",
 				strings.Join(given[:len(given)-1], ", ")+" and "+given[len(given)-1])
+		}
+	}
+	if o.TimeLimit != "" {
+		if err := slurm.CheckTime(o.TimeLimit); err != nil {
+			return fmt.Errorf("--time %q: %w", o.TimeLimit, err)
+		}
+	}
+	if o.Partition != "" {
+		if err := slurm.CheckPartition(o.Partition); err != nil {
+			return fmt.Errorf("--partition %q: %w", o.Partition, err)
 		}
 	}
 	switch {

@@ -248,3 +248,28 @@ func checkBatchFlags(t *testing.T, args []string, wantRun bool, want string) {
 		t.Errorf("%v: %v is not a bad input (exit 2)", args, err)
 	}
 }
+
+// TestBatchJobsWithSlurmRefused: --jobs given with --slurm was ignored
+// without a word (each array task runs one study; found by the batch
+// audit of 2026-12-05), so a user who meant to limit the cluster to N
+// studies at once ran them all at once: it is refused (exit 2), pointing
+// to --max-parallel. --memory with --slurm is each task's memory, so it
+// is accepted.
+func TestBatchJobsWithSlurmRefused(t *testing.T) {
+	for _, c := range []struct {
+		args    []string
+		wantRun bool
+		want    string
+	}{
+		{[]string{"--slurm", "--jobs", "4"}, false, "--jobs sets how many studies this machine runs at once; with --slurm each array task runs one study: use --max-parallel 4"},
+		{[]string{"--slurm", "--jobs", "1"}, false, "--jobs sets how many studies"},
+		{[]string{"--slurm", "--memory", "8G"}, true, ""},
+		// A --time or --partition sbatch would not take made a bad
+		// plan, reported as a bug (exit 3) after --out was made.
+		{[]string{"--slurm", "--time", "2h"}, false, `--time "2h": write a time limit as sbatch takes it`},
+		{[]string{"--slurm", "--partition", "a b"}, false, `--partition "a b": `},
+		{[]string{"--slurm", "--time", "UNLIMITED", "--partition", "gpu,cpu"}, true, ""},
+	} {
+		checkBatchFlags(t, c.args, c.wantRun, c.want)
+	}
+}

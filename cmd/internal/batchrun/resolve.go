@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"areasweep/cmd/internal/batch"
+	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
@@ -66,12 +67,10 @@ func resolve(o *Options) ([]*study, error) {
 		studies = append(studies, st)
 	}
 	for _, row := range b.Refused {
-		bad := func(column string, err error) *inputs.BatchError {
-			return &inputs.BatchError{File: b.File, Line: row.Line, Column: column, Study: row.ID, Err: err}
-		}
-		errs = append(errs, refusedProblems(row, filepath.Join(out, "refused"), bad)...)
+		errs = append(errs, refusedProblems(row, filepath.Join(out, "refused"), rowError(b.File, row.BatchStudy))...)
 	}
 	if len(errs) > 0 {
+		errs = mergeShared(errs)
 		inputs.SortBatchErrors(errs)
 		return nil, errs
 	}
@@ -84,9 +83,7 @@ func resolve(o *Options) ([]*study, error) {
 // resolveRow lays one row of the table (file) over the defaults into the
 // study's settings, its folder in out; the errors are the row's problems.
 func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, reserved map[string]bool) (*study, inputs.BatchErrors) {
-	bad := func(column string, err error) *inputs.BatchError {
-		return &inputs.BatchError{File: file, Line: row.Line, Column: column, Study: row.ID, Err: err}
-	}
+	bad := rowError(file, row)
 	if reserved[strings.ToLower(row.ID)] {
 		return nil, inputs.BatchErrors{bad("id", fmt.Errorf("%q is the name of a summary file in --out; rename the study", row.ID))}
 	}
@@ -96,6 +93,10 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	}
 	if col, err := inputInOut(&po, out); err != nil {
 		return nil, inputs.BatchErrors{bad(col, err)}
+	}
+	if err := outdir.LengthError(po.Out); err != nil {
+		// Run would refuse it only after the studies before it ran.
+		return nil, inputs.BatchErrors{bad("id", fmt.Errorf("%s; the study's folder is --out/<id>: shorten --out or the id", fault.UserText(err)))}
 	}
 	st := &study{id: row.ID, line: row.Line, opts: po, dir: po.Out}
 	if col, err := missingInput(&po); err != nil {
@@ -108,6 +109,44 @@ func resolveRow(o *Options, file string, row inputs.BatchStudy, out string, rese
 	st.canonical = canonicalSettings(po)
 	st.settings = batch.SettingsHash(st.canonical)
 	return st, nil
+}
+
+// rowError returns the function that words a problem of row's setting
+// column (its key) in the table file: at the row's line, or, when the row
+// takes that setting from the shared settings, at the shared line that
+// gives it (inputs.BatchError.Shared), so that a bad shared value is not
+// sent to look for a column the table may not have.
+func rowError(file string, row inputs.BatchStudy) func(column string, err error) *inputs.BatchError {
+	return func(column string, err error) *inputs.BatchError {
+		if line, shared := row.SharedLines[column]; shared && column != "" {
+			return &inputs.BatchError{File: file, Line: line, Column: column, Shared: true, Studies: []string{row.ID}, Err: err}
+		}
+		return &inputs.BatchError{File: file, Line: row.Line, Column: column, Study: row.ID, Err: err}
+	}
+}
+
+// mergeShared makes the problems of one shared setting that several rows
+// meet alike (the same line, key and message) one problem naming their
+// studies, in table order: "# e: 1.5" gave one line per study.
+func mergeShared(errs inputs.BatchErrors) inputs.BatchErrors {
+	var out inputs.BatchErrors
+	first := map[string]*inputs.BatchError{}
+	for _, e := range errs {
+		if !e.Shared {
+			out = append(out, e)
+			continue
+		}
+		k := fmt.Sprintf("%d\x00%s\x00%s", e.Line, e.Column, e.Err.Error())
+		if f, seen := first[k]; seen {
+			f.Studies = append(f.Studies, e.Studies...)
+			continue
+		}
+		c := *e
+		c.Studies = append([]string(nil), e.Studies...)
+		first[k] = &c
+		out = append(out, &c)
+	}
+	return out
 }
 
 // rowOptions lays a row's settings (the shared block's and its own) over

@@ -35,6 +35,11 @@ func Run(ctx context.Context, o *Options, w IO) error {
 		if err := slurmMissing(studies); err != nil {
 			return err
 		}
+		if o.Memory > 0 { // refused before anything is written
+			if _, err := taskMemoryMB(o, studies); err != nil {
+				return err
+			}
+		}
 	}
 	if err := o.Slurm.clientsPresent(); err != nil {
 		return fault.BadInput(err)
@@ -43,7 +48,7 @@ func Run(ctx context.Context, o *Options, w IO) error {
 		return err
 	}
 	if o.Slurm.Enabled {
-		return runSlurm(ctx, o, w.Out, studies)
+		return runSlurm(ctx, o, w, studies)
 	}
 	return runLocal(ctx, o, w, studies)
 }
@@ -60,6 +65,9 @@ func preflight(o *Options) error {
 	if err := outdir.TildeError("--out", o.Out); err != nil {
 		return err
 	}
+	if err := outPathError(o); err != nil {
+		return fault.BadInput(err)
+	}
 	if !o.SummaryOnly && !o.Slurm.Enabled {
 		if err := extent.CheckSetup(); err != nil {
 			return fault.BadInput(err)
@@ -69,6 +77,30 @@ func preflight(o *Options) error {
 		if err := report.CheckTempDir(); err != nil {
 			return fmt.Errorf("%w; no study ran", err)
 		}
+	}
+	return nil
+}
+
+// outPathError refuses an --out that no study folder could be made in,
+// before anything is made: a path holding a line break (run refuses it
+// as each study's --out, so every study failed after --out was made and
+// the summary was written there), and with --slurm one holding a tab (the
+// manifest's separator) or a backslash, which sbatch drops from the job
+// logs' path (slurm.Plan refuses both); with --slurm also a study table
+// read from a pipe, which the array tasks could not read again.
+func outPathError(o *Options) error {
+	abs, err := filepath.Abs(o.Out)
+	if err != nil {
+		abs = o.Out
+	}
+	if strings.ContainsAny(abs, "\n\r") {
+		return outdir.LineBreakError("--out", o.Out, abs)
+	}
+	if o.Slurm.Enabled && inputs.StreamPath(o.Table) {
+		return fmt.Errorf("the study table %s is a pipe or standard input; with --slurm each array task reads the table again by its path: save it to a file and name that", o.Table)
+	}
+	if o.Slurm.Enabled && strings.ContainsAny(abs, "\t\\") {
+		return fmt.Errorf("--out %s: with --slurm its path cannot hold a tab or a backslash (the task manifest separates its fields with tabs, and sbatch drops a backslash from the job logs' path); choose a folder whose path has neither", o.Out)
 	}
 	return nil
 }

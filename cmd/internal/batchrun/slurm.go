@@ -16,9 +16,11 @@ import (
 	"areasweep/cmd/internal/batch"
 	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/inputs"
+	"areasweep/cmd/internal/outdir"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/cmd/internal/slurm"
 	"areasweep/report"
+	"areasweep/report/outfile"
 )
 
 // clientsPresent checks, before anything is written, that the SLURM
@@ -46,7 +48,7 @@ var jobNameUnsafe = regexp.MustCompile(`[^A-Za-z0-9_.\-]+`)
 // slurmPlan builds the plan of a batch: one task per study (the whole
 // study, shard 1/1) running this executable's batch command on that
 // study alone, and a merge job writing the summary; memory per task from
-// the largest study's estimate.
+// the largest study's estimate, or --memory (refused below that estimate).
 func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 	exe, err := os.Executable()
 	if err != nil {
@@ -66,7 +68,6 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 	}
 	p := &slurm.Plan{Name: name, Dir: slurmDir(out), CPUs: o.Slurm.CPUs, TimeLimit: o.Slurm.TimeLimit,
 		Partition: o.Slurm.Partition, MaxParallel: o.Slurm.MaxParallel, MergeAfterAny: true, CommandMakesOut: true}
-	var need int64
 	for _, st := range studies {
 		if o.Shards <= 1 {
 			p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: 1, Shards: 1, Out: st.dir})
@@ -75,15 +76,10 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 				p.Tasks = append(p.Tasks, slurm.Task{Study: st.id, Shard: k, Shards: o.Shards, Out: shardDir(out, st.id, k)})
 			}
 		}
-		so := st.opts
-		so.Workers = o.Slurm.CPUs
-		// A study whose inputs cannot be read still gets its task: it
-		// fails there and the summary lists it.
-		if n, err := pipeline.Estimate(so); err == nil {
-			need = max(need, n)
-		}
 	}
-	p.MemoryMB = slurm.MemoryMB(need)
+	if p.MemoryMB, err = taskMemoryMB(o, studies); err != nil {
+		return nil, err
+	}
 	base := slurm.Quote(exe) + " batch " + slurm.Quote(table) + " --out " + slurm.Quote(out) + " --quiet"
 	if o.Force {
 		base += " --force"
@@ -96,6 +92,33 @@ func slurmPlan(o *Options, studies []*study) (*slurm.Plan, error) {
 		p.MergeCommand = base + " --shards " + n + " --summary-only"
 	}
 	return p, nil
+}
+
+// taskMemoryMB is the memory each task asks for, in MiB: the largest
+// study's estimate with headroom (slurm.MemoryMB), or --memory, which is
+// refused below that estimate (a bad input), since each task's own run
+// would refuse it.
+func taskMemoryMB(o *Options, studies []*study) (int, error) {
+	var need int64
+	var needs string // the study of the largest need
+	for _, st := range studies {
+		so := st.opts
+		so.Workers = o.Slurm.CPUs
+		// A study whose inputs cannot be read still gets its task: it
+		// fails there and the summary lists it.
+		if n, err := pipeline.Estimate(so); err == nil && n > need {
+			need, needs = n, st.id
+		}
+	}
+	if o.Memory <= 0 {
+		return slurm.MemoryMB(need), nil
+	}
+	const mib = 1 << 20
+	if o.Memory < need {
+		return 0, fault.BadInput(fmt.Errorf("--memory is less than a task needs: study %s needs about %d MiB (its memory estimate, which its run checks), and with --slurm --memory is what each task asks for; give at least %dM, or leave --memory out to ask for the estimate plus headroom (%d MiB); nothing was written or submitted",
+			needs, (need+mib-1)/mib, (need+mib-1)/mib, slurm.MemoryMB(need)))
+	}
+	return int((o.Memory + mib - 1) / mib), nil // sbatch's unit, rounded up
 }
 
 // slurmMissing refuses a SLURM plan for a table with a missing input
@@ -112,19 +135,41 @@ func slurmMissing(studies []*study) error {
 	if len(missing) == 0 {
 		return nil
 	}
+	missing = mergeShared(missing) // a shared input missing: once, with its studies
 	return fault.BadInput(fmt.Errorf("%w\nnothing was written or submitted: fix the paths (or remove the rows), then run this command again", missing))
 }
 
 // runSlurm writes the plan and, with --submit, submits the unfinished
-// tasks and the merge job; it prints to w what it wrote and did.
-func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) error {
+// tasks and the merge job; it prints to w.Out what it wrote and did.
+// Before it writes, it refuses while the jobs of the batch's previous
+// submission are still queued (queuedBefore); after, it records the new
+// jobs (recordSubmitted), and a stop signal's message says that they keep
+// running.
+func runSlurm(ctx context.Context, o *Options, streams IO, studies []*study) error {
+	w := streams.Out
+	note := func(string) func() { return func() {} }
+	if streams.StopNote != nil {
+		note = streams.StopNote
+	}
+	defer note("the job files written so far are in " + slurmDir(o.Out) + "; nothing was submitted")()
+	if err := queuedBefore(ctx, o); err != nil {
+		return err
+	}
 	p, err := slurmPlan(o, studies)
 	if err != nil {
 		return err
 	}
 	files, err := p.Write()
-	if err != nil {
-		return fault.Internal(err)
+	switch {
+	case errors.Is(err, slurm.ErrPlan), errors.Is(err, slurm.ErrManifest):
+		return fault.Internal(err) // the plan areasweep made is wrong
+	case err != nil:
+		// An outside failure: a full disk or quota, a folder in the way.
+		what := strings.TrimPrefix(err.Error(), "slurm: ") // names the file
+		if outdir.DiskFull(err) {
+			what += " (free some space on that disk)"
+		}
+		return fmt.Errorf("writing the SLURM job files into %s failed: %s; nothing was submitted: fix that, then run this command again", slurmDir(o.Out), what)
 	}
 	pending, stale, err := slurmPending(o, p, studies)
 	if err != nil {
@@ -151,7 +196,9 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		}
 		return nil
 	}
+	defer note("the job files are in " + slurmDir(o.Out) + "; a job sbatch accepted before the signal is in the queue (squeue shows it) and runs: see squeue before running this command again")()
 	sub, err := (slurm.Submitter{}).Submit(ctx, p, files, pending)
+	recordSubmitted(o, sub)
 	if err != nil {
 		return submitFailed(err, sub, files)
 	}
@@ -159,6 +206,7 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		fmt.Fprintf(w, "submitted array job %s (tasks %s)\n", sub.ArrayJob, slurm.ArraySpec(sub.Tasks, 0))
 	}
 	fmt.Fprintf(w, "submitted merge job %s; the summary will be %s\n", sub.MergeJob, filepath.Join(o.Out, "summary.html"))
+	defer note(keepRunning(o, sub))()
 	if !o.Slurm.Wait {
 		return nil
 	}
@@ -166,6 +214,88 @@ func runSlurm(ctx context.Context, o *Options, w io.Writer, studies []*study) er
 		return err
 	}
 	return waited(o, w, studies, files.Logs, staleIDs, unreadableIDs)
+}
+
+// submittedPath is the file that records the jobs of the batch's last
+// submission, one id per line.
+func submittedPath(out string) string { return filepath.Join(slurmDir(out), "submitted") }
+
+// submittedJobs are the ids of the jobs sub holds: the array's, then the
+// merge job's.
+func submittedJobs(sub slurm.Submission) []string {
+	var ids []string
+	for _, j := range []string{sub.ArrayJob, sub.MergeJob} {
+		if j != "" {
+			ids = append(ids, j)
+		}
+	}
+	return ids
+}
+
+// recordSubmitted records the jobs of sub, when sbatch accepted any, so
+// that the next --submit can tell whether they are still queued. Best
+// effort: without the record that check is not made.
+func recordSubmitted(o *Options, sub slurm.Submission) {
+	if ids := submittedJobs(sub); len(ids) > 0 {
+		outfile.Write(submittedPath(o.Out), []byte(strings.Join(ids, "\n")+"\n"), 0o666)
+	}
+}
+
+// queuedBefore refuses to submit while a job of the batch's previous
+// submission (recordSubmitted) is still in the queue: its unfinished
+// tasks would be submitted a second time, to run beside the queued ones
+// into the same folders, and a second merge job with them. Without
+// --submit it refuses too: the plan's files would be written again, and
+// a queued task reads its line of manifest.tsv only when it starts.
+// Without a record, or without squeue on PATH to ask, nothing is refused.
+func queuedBefore(ctx context.Context, o *Options) error {
+	b, err := os.ReadFile(submittedPath(o.Out))
+	if err != nil {
+		return nil
+	}
+	var ids []string
+	for _, id := range strings.Fields(string(b)) {
+		if jobIDRE.MatchString(id) {
+			ids = append(ids, id)
+		}
+	}
+	if _, err := exec.LookPath("squeue"); err != nil || len(ids) == 0 {
+		return nil
+	}
+	queued, err := (slurm.Submitter{}).Queued(ctx, ids...)
+	if err != nil {
+		return fmt.Errorf("cannot tell whether the jobs %s of this batch's previous submission are still queued (%w); nothing was submitted", strings.Join(ids, ", "), err)
+	}
+	if len(queued) == 0 {
+		return nil
+	}
+	what := "job " + queued[0] + " of this batch's previous submission is"
+	if len(queued) > 1 {
+		what = "jobs " + strings.Join(queued[:len(queued)-1], ", ") + " and " + queued[len(queued)-1] + " of this batch's previous submission are"
+	}
+	why := "submitting now would submit the unfinished tasks a second time, to run beside the queued ones"
+	if !o.Slurm.Submit {
+		why = "writing the job files now would change the manifest the queued tasks read when they start (a row added or removed would send them to other studies)"
+	}
+	return fault.BadInput(fmt.Errorf("%s still in the SLURM queue (squeue -j %s shows them): %s; wait until they have left the queue, or cancel them (scancel %s), then run this command again; nothing was written or submitted",
+		what, strings.Join(queued, ","), why, strings.Join(queued, " ")))
+}
+
+var jobIDRE = regexp.MustCompile(`^[0-9]+$`)
+
+// keepRunning is what a stop signal's message says once jobs were
+// submitted: they keep running and writing into --out.
+func keepRunning(o *Options, sub slurm.Submission) string {
+	var named []string
+	if sub.ArrayJob != "" {
+		named = append(named, "array job "+sub.ArrayJob)
+	}
+	if sub.MergeJob != "" {
+		named = append(named, "merge job "+sub.MergeJob)
+	}
+	ids := submittedJobs(sub)
+	return fmt.Sprintf("the submitted jobs keep running on the cluster (%s: squeue -j %s shows them, scancel %s cancels them) and write into %s; running this command again while they are in the queue is refused",
+		strings.Join(named, ", "), strings.Join(ids, ","), strings.Join(ids, " "), o.Out)
 }
 
 // submitFailed says what a failed submission left and what to do. When

@@ -73,15 +73,43 @@ type BatchError struct {
 	Line   int
 	Column string
 	Study  string
-	Err    error
+	// Shared is true when the value at fault is a shared setting's, not
+	// the row's: Line is then the shared settings' line that gives it and
+	// Column its key, and Studies the studies it concerns (the rows that
+	// do not give their own value; Study is then empty).
+	Shared  bool
+	Studies []string
+	Err     error
 }
 
-// Error formats the error as `inputs: FILE line N, study "ID", column "C": message`.
+// Error formats the error as `inputs: FILE line N, study "ID", column "C": message`,
+// or for a shared setting `inputs: FILE line N (shared settings), key "C",
+// for studies a and b: message`.
 // A value refused as a study file's (ErrBadValue) reads "bad value: ...":
 // the table, not a study file, holds it.
 func (e *BatchError) Error() string {
 	s := located(e.File, e.Line, e.Study, "column", e.Column, e.Err)
+	if e.Shared {
+		s = located(fmt.Sprintf("%s line %d (shared settings), key %q, %s", e.File, e.Line, e.Column, forStudies(e.Studies)), 0, "", "", "", e.Err)
+	}
 	return strings.Replace(s, ": "+strings.TrimPrefix(ErrBadValue.Error(), "inputs: ")+": ", ": bad value: ", 1)
+}
+
+// maxStudiesNamed is how many studies a shared setting's problem names
+// (the rest are counted).
+const maxStudiesNamed = 5
+
+// forStudies is "for study a", "for studies a and b", "for studies a, b,
+// c, d, e and 7 more".
+func forStudies(ids []string) string {
+	switch n := len(ids); {
+	case n == 1:
+		return "for study " + ids[0]
+	case n <= maxStudiesNamed:
+		return "for studies " + strings.Join(ids[:n-1], ", ") + " and " + ids[n-1]
+	default:
+		return fmt.Sprintf("for studies %s and %d more", strings.Join(ids[:maxStudiesNamed], ", "), n-maxStudiesNamed)
+	}
 }
 
 // Unwrap returns the wrapped error.
@@ -149,6 +177,9 @@ type BatchStudy struct {
 	ID    string
 	Line  int
 	Study *Study
+	// SharedLines are the keys the row takes from the shared settings
+	// (it gives no value of its own), each with the line that sets it.
+	SharedLines map[string]int
 }
 
 // MaxBatchStudies caps the rows of a study table.
@@ -191,13 +222,29 @@ func LoadBatch(path string) (*Batch, error) {
 	// The folder is made absolute, so that a study's recorded input paths
 	// (results.json) do not depend on how the table was named: a local
 	// batch and a scheduler task (which names the table absolutely) write
-	// the same bytes.
+	// the same bytes. A table read from a pipe or standard input has no
+	// folder of its own: its relative paths are taken from the current
+	// folder, as a study file's (they were joined to /dev/fd or /dev).
 	dir := filepath.Dir(path)
+	if st, err := f.Stat(); err == nil && !st.Mode().IsRegular() || isStreamPath(path) {
+		dir = "."
+	}
 	if abs, err := filepath.Abs(dir); err == nil {
 		dir = abs
 	}
 	ext := strings.ToLower(filepath.Ext(path))
 	return ParseBatch(data, path, dir, ext == ".yaml" || ext == ".yml")
+}
+
+// StreamPath reports whether path names a pipe or a process's open file
+// (/dev/stdin, /dev/fd/N, a shell's <(...), a named pipe) rather than a
+// file that can be read again by its name.
+func StreamPath(path string) bool {
+	if isStreamPath(path) {
+		return true
+	}
+	st, err := os.Stat(path)
+	return err == nil && st.Mode()&os.ModeNamedPipe != 0
 }
 
 // ParseBatch reads a study table from data; name is used in messages,
@@ -263,6 +310,8 @@ type batchParser struct {
 	row    map[string]bool
 	// bad marks, per study, a row with some problem.
 	bad []bool
+	// sharedLine is the line of each key of the shared settings.
+	sharedLine map[string]int
 }
 
 func (p *batchParser) add(line int, column, study string, err error) {
@@ -277,6 +326,10 @@ func (p *batchParser) add(line int, column, study string, err error) {
 // given line, column and study.
 func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) {
 	if !contains(studyKeys, key) {
+		if namesStudyFile(key) {
+			p.add(v.Line, key, study, fmt.Errorf("%w: %q is not a study key: %s as the row's keys (and those every study shares under settings:)", ErrBatchColumn, key, noStudyFile))
+			return
+		}
 		hint := ""
 		if s := closestKey(key); s != "" {
 			hint = fmt.Sprintf("did you mean %q? ", s)
@@ -293,7 +346,26 @@ func (p *batchParser) setKey(st *Study, key string, v *yaml.Node, study string) 
 		if p.row != nil {
 			p.row[key] = true
 		}
+		return
 	}
+	if st == p.b.Shared {
+		if p.sharedLine == nil {
+			p.sharedLine = map[string]int{}
+		}
+		p.sharedLine[key] = v.Line
+	}
+}
+
+// noStudyFile says, after "... is not a study key: ", that a table names
+// no study file, and how its keys are given instead.
+const noStudyFile = "a study table cannot name a study file; give the file's keys"
+
+// namesStudyFile reports whether a column or key (lower case) reads as a
+// study file's ("study", "study file", "study_file", "studyfile"): each
+// row naming its own, which a table does not do.
+func namesStudyFile(c string) bool {
+	c = strings.NewReplacer(" ", "", "-", "", "_", "").Replace(strings.ToLower(c))
+	return c == "study" || c == "studyfile" || c == "studyyaml"
 }
 
 // batchKeys are the study keys a table accepts.
@@ -587,6 +659,9 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 		case c == "id":
 			p.add(line, c, "", fmt.Errorf("%w: id appears again in column %d", ErrBatchColumn, j+1))
 			ok = false
+		case namesStudyFile(c):
+			p.add(line, c, "", fmt.Errorf("%w: column %d %q is not a study key: %s as the row's columns (and those every study shares as the '# key: value' lines at the top)", ErrBatchColumn, j+1, rec[j], noStudyFile))
+			ok = false
 		case c == "out" || !contains(studyKeys, c):
 			hint := ""
 			if s := closestKey(c); s != "" && s != "out" && c != "out" {
@@ -728,6 +803,12 @@ func (p *batchParser) finish() {
 				seen[low] = s.Line
 			}
 		}
+		s.SharedLines = map[string]int{}
+		for k := range *p.b.Shared {
+			if _, own := (*s.Study)[k]; !own && p.sharedLine[k] > 0 {
+				s.SharedLines[k] = p.sharedLine[k]
+			}
+		}
 		merged := overlay(p.b.Shared, s.Study)
 		for _, k := range requiredKeys {
 			if p.failed[i][k] {
@@ -817,8 +898,10 @@ lynx,gbm=lynx/gbm.tif,lynx/points.csv,lynx/region.gpkg,eco.gpkg,ECO_NAME
 
 // rowHint explains a row with more cells than the header in a
 // comma-separated table by its likely cause: NAME=PATH items of one cell
-// separated by commas instead of ';', or a decimal comma (commaHint). In
-// a table delimited by semicolons, the ';' between a cell's items (two
+// separated by commas instead of ';', a decimal comma (commaHint) when
+// two neighbouring cells end and start with a digit (0,05 split in two),
+// else a cell holding a comma that needs double quotes (a path through a
+// folder "Smith, J"). In a table delimited by semicolons, the ';' between a cell's items (two
 // models, a list 20;50) splits the cell unless it is in double quotes.
 func rowHint(delim rune, rec []string, header int) string {
 	if delim == ';' && len(rec) > header {
@@ -836,5 +919,14 @@ func rowHint(delim rune, rec []string, header int) string {
 	if named >= 2 {
 		return ". Several NAME=PATH items in one cell are separated by ';' (gbm=a.tif;glm=b.tif): with ',' they fall into the next columns"
 	}
-	return commaHint(delim, len(rec), header)
+	for j := 1; j+1 < len(rec); j++ {
+		a, b := strings.TrimSpace(rec[j]), strings.TrimSpace(rec[j+1])
+		if a != "" && b != "" && isDigit(a[len(a)-1]) && isDigit(b[0]) && !strings.Contains(a, "/") {
+			return commaHint(delim, len(rec), header) // "0,05" split into 0 and 05
+		}
+	}
+	return `. A cell that holds a comma (a path such as "/data/Smith, J/m.tif") goes in double quotes, or else it falls into the next columns`
 }
+
+// isDigit reports whether c is an ASCII digit.
+func isDigit(c byte) bool { return '0' <= c && c <= '9' }

@@ -9,6 +9,7 @@ import (
 	"reflect"
 	"slices"
 	"strings"
+	"syscall"
 	"testing"
 	"unicode/utf8"
 )
@@ -61,14 +62,23 @@ func wantBatch(dir string) []BatchStudy {
 	}
 }
 
+// sharedCSV and sharedYAML are the shared settings' keys each study of
+// batchCSV and batchYAML takes (it gives no value of its own), with the
+// line that sets each (worked by hand from the tables).
+var (
+	sharedCSV  = []map[string]int{{"iterations": 1, "region-buffers": 2, "seed": 3}, {"iterations": 1}}
+	sharedYAML = []map[string]int{{"iterations": 2, "region-buffers": 3, "seed": 4}, {"iterations": 2}}
+)
+
 func TestBatchCSVAndYAMLAgree(t *testing.T) {
 	dir := t.TempDir()
 	for _, c := range []struct {
 		file, text string
 		lines      []int
+		shared     []map[string]int // the shared settings' lines each row takes (worked by hand from the tables)
 	}{
-		{"studies.csv", batchCSV, []int{6, 8}},
-		{"studies.yaml", batchYAML, []int{6, 10}},
+		{"studies.csv", batchCSV, []int{6, 8}, sharedCSV},
+		{"studies.yaml", batchYAML, []int{6, 10}, sharedYAML},
 	} {
 		path := filepath.Join(dir, c.file)
 		if err := os.WriteFile(path, []byte(c.text), 0o644); err != nil {
@@ -80,7 +90,7 @@ func TestBatchCSVAndYAMLAgree(t *testing.T) {
 		}
 		want := wantBatch(dir)
 		for i := range want {
-			want[i].Line = c.lines[i]
+			want[i].Line, want[i].SharedLines = c.lines[i], c.shared[i]
 		}
 		if !reflect.DeepEqual(b.Studies, want) {
 			for i := range b.Studies {
@@ -103,9 +113,10 @@ func TestBatchCarriageReturns(t *testing.T) {
 	for _, c := range []struct {
 		name, text string
 		lines      []int
+		shared     []map[string]int
 	}{
-		{"mac.csv", batchCSV, []int{6, 8}},
-		{"mac.yaml", batchYAML, []int{6, 10}},
+		{"mac.csv", batchCSV, []int{6, 8}, sharedCSV},
+		{"mac.yaml", batchYAML, []int{6, 10}, sharedYAML},
 	} {
 		for _, end := range []string{"\r", "\r\n"} {
 			text := strings.ReplaceAll(c.text, "\n", end)
@@ -115,7 +126,7 @@ func TestBatchCarriageReturns(t *testing.T) {
 			}
 			want := wantBatch(dir)
 			for i := range want {
-				want[i].Line = c.lines[i]
+				want[i].Line, want[i].SharedLines = c.lines[i], c.shared[i]
 			}
 			b, err := LoadBatch(path)
 			if err != nil {
@@ -284,6 +295,18 @@ func TestBatchRefuses(t *testing.T) {
 		{"name twice in a cell", "id,model,occurrences,region\na,g=x;g=y,p,r\n", false, ErrBadValue, `the name "g" is given twice on this line`},
 		{"column twice", "id,model,occurrences,region,model\na,m=x,p,r,m=y\n", false, ErrBatchColumn, `columns 2 and 5 are both "model"; keep one of them`},
 		{"model and models", "id,model,models,occurrences,region\na,m=x,m=y,p,r\n", false, ErrBatchColumn, `columns 2 and 3 "model" and "models" both give "model"; keep one of them`},
+		// A column naming each row's study file was refused with the list
+		// of columns only, as if a typo (found by the batch audit of
+		// 2026-12-05): it says that a table cannot name one.
+		{"study column", "id,study\na,oak.yaml\n", false, ErrBatchColumn, `column 2 "study" is not a study key: a study table cannot name a study file; give the file's keys as the row's columns`},
+		{"study file column", "id,Study File\na,oak.yaml\n", false, ErrBatchColumn, "a study table cannot name a study file"},
+		// A row with one cell too many: a decimal comma is named only
+		// where two cells split at it look like the halves of a number;
+		// a path holding a comma (a folder "Smith, J") is told to go in
+		// quotes (the comma hint was given for any extra cell).
+		{"decimal comma split", "id,model,occurrences,region,e\na,m=x,p,r,0,05\n", false, ErrBatchSyntax, "a decimal comma (12,5) splits a number in two"},
+		{"comma in a path", "id,model,occurrences,region\na,m=/data/Smith, J/m.tif,p,r\n", false, ErrBatchSyntax, `5 cells, the header has 4 columns; every row needs one cell per column (empty cells are allowed). A cell that holds a comma (a path such as "/data/Smith, J/m.tif") goes in double quotes`},
+		{"yaml study key", "studies:\n  - id: a\n    study: oak.yaml\n", true, ErrBatchColumn, `"study" is not a study key: a study table cannot name a study file; give the file's keys as the row's keys (and those every study shares under settings:)`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -395,6 +418,39 @@ func TestLoadBatchAbsolutePaths(t *testing.T) {
 		if m, _ := st["model"].([]string); len(m) != 1 || m[0] != "m="+filepath.Join(dir, "oak", "m.tif") {
 			t.Errorf("table named %s: model %v", name, st["model"])
 		}
+	}
+}
+
+// TestLoadBatchFromPipe: a table read from a pipe (areasweep batch
+// <(...) --out DIR, or /dev/stdin) had its relative paths joined to
+// /dev/fd or /dev, so every study failed with "/dev/fd/in/model.tif does
+// not exist" (found by the batch audit of 2026-12-05). As for a study
+// file read so, they are taken from the current folder, made absolute.
+func TestLoadBatchFromPipe(t *testing.T) {
+	wd := t.TempDir()
+	t.Chdir(wd)
+	fifo := filepath.Join(t.TempDir(), "table.csv")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	go func() {
+		f, err := os.OpenFile(fifo, os.O_WRONLY, 0)
+		if err != nil {
+			return
+		}
+		f.WriteString("id,model,occurrences,region\noak,m=in/m.tif,in/p.csv,/abs/r.gpkg\n")
+		f.Close()
+	}()
+	b, err := LoadBatch(fifo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := *b.Studies[0].Study
+	if st["occurrences"] != filepath.Join(wd, "in", "p.csv") || st["region"] != "/abs/r.gpkg" {
+		t.Errorf("occurrences %v, region %v; want them from the current folder %s", st["occurrences"], st["region"], wd)
+	}
+	if !StreamPath(fifo) || !StreamPath("/dev/stdin") || StreamPath(filepath.Join(wd)) {
+		t.Errorf("StreamPath: a pipe, /dev/stdin and a folder read %v, %v, %v", StreamPath(fifo), StreamPath("/dev/stdin"), StreamPath(wd))
 	}
 }
 

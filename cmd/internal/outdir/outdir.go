@@ -350,11 +350,8 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs, shard
 	if err := checkOutVsInputs(d.abs, out, inputs); err != nil {
 		return nil, false, err
 	}
-	if n := d.longestStaged(); n > maxSQLitePath && !shard {
-		return nil, false, fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
-	}
-	if n := d.longestBeside(); n > nameMax {
-		return nil, false, fault.BadInput(fmt.Errorf("--out %s: its last name is %d bytes, and the hidden lock file and staging folder areasweep makes beside it add %d: over the %d bytes a file name may have; choose a name of at most %d bytes", out, len(d.name), n-len(d.name), nameMax, nameMax-(n-len(d.name))))
+	if err := d.lengthError(out); err != nil {
+		return nil, false, err
 	}
 	st, err := os.Stat(d.abs)
 	exists := err == nil
@@ -405,6 +402,34 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs, shard
 		return nil, false, fault.BadInput(fmt.Errorf("--out %s cannot be used: %s on its path is a symbolic link to %s, which does not exist; create that folder, remove the link, or choose another --out", out, link, target))
 	}
 	return d, exists, nil
+}
+
+// lengthError refuses an --out (given as out) whose path is too long for
+// the GeoPackages written in it (not for a shard's, which writes none),
+// or whose last name is too long for the lock file and staging folder
+// made beside it.
+func (d *Dir) lengthError(out string) error {
+	if n := d.longestStaged(); n > maxSQLitePath && !d.Shard {
+		return fault.BadInput(fmt.Errorf("--out %s: its path is too long for the GeoPackage files written in it (SQLite opens a file whose path has at most %d bytes; a GeoPackage written in it while the run works would have up to %d): choose an --out with a path %d bytes shorter", out, maxSQLitePath, n, n-maxSQLitePath))
+	}
+	if n := d.longestBeside(); n > nameMax {
+		return fault.BadInput(fmt.Errorf("--out %s: its last name is %d bytes, and the hidden lock file and staging folder areasweep makes beside it add %d: over the %d bytes a file name may have; choose a name of at most %d bytes", out, len(d.name), n-len(d.name), nameMax, nameMax-(n-len(d.name))))
+	}
+	return nil
+}
+
+// LengthError is the refusal Open makes of a run's --out out whose path
+// or last name is too long (see lengthError), for a caller that checks
+// folders before any run opens them (a batch, each study's folder before
+// the first study runs); nil when out is fine or cannot be resolved.
+func LengthError(out string) error {
+	abs, err := filepath.Abs(filepath.Clean(out))
+	if err != nil {
+		return nil
+	}
+	d := &Dir{Out: filepath.Clean(out), abs: realPath(abs)}
+	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
+	return d.lengthError(out)
 }
 
 // open writes what Open makes: the folders above --out that are missing,

@@ -149,3 +149,39 @@ touch "$AREASWEEP_OUT/ok"`)
 		t.Fatal("the merge job ran although a task failed")
 	}
 }
+
+// TestClusterLogFolderNamed: a batch --out with a space in its path (a
+// folder "SDM runs") made every submission fail, sbatch saying "Invalid
+// directive found in batch script: runs/..." (found by the batch audit of
+// 2026-12-05): sbatch splits a #SBATCH line at spaces and reads quotes,
+// '#' and '%' of its own, so the job's log path must be written in its
+// quoting. The folder here holds a space, both quotes, '#' and '%';
+// the task's and the merge job's logs must land in it under their names.
+func TestClusterLogFolderNamed(t *testing.T) {
+	env := slurmtest.Start(t, "../../../scripts/slurm-local.sh")
+	s := Submitter{Env: env}
+	ctx, cancel := context.WithTimeout(context.Background(), 180*time.Second)
+	defer cancel()
+	dir := filepath.Join(t.TempDir(), `SDM runs 'a' "b" #1 100%`)
+	p := testPlan(dir, 1, `echo done >"$AREASWEEP_OUT/result.txt"`)
+	p.Tasks[0].Shards, p.Tasks[0].Shard = 1, 1
+	f, err := p.Write()
+	if err != nil {
+		t.Fatal(err)
+	}
+	sub, err := s.Submit(ctx, p, f, p.Pending())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := s.Wait(ctx, 250*time.Millisecond, sub.ArrayJob, sub.MergeJob); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"task-1.log", "merge-" + sub.MergeJob + ".log"} {
+		if _, err := os.Stat(filepath.Join(f.Logs, name)); err != nil {
+			t.Errorf("log %s not in %s: %v", name, f.Logs, err)
+		}
+	}
+	if got := p.Pending(); len(got) != 0 {
+		t.Errorf("unfinished tasks %v", got)
+	}
+}

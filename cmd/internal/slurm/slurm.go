@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"os/exec"
+	"os/user"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -165,7 +166,33 @@ type Plan struct {
 }
 
 var jobNameRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,64}$`)
-var timeRE = regexp.MustCompile(`^[0-9:\-]{1,20}$`)
+
+// timeRE holds sbatch's forms of a time limit: minutes, minutes:seconds,
+// hours:minutes:seconds, days-hours, days-hours:minutes,
+// days-hours:minutes:seconds, and UNLIMITED or INFINITE.
+var timeRE = regexp.MustCompile(`^([0-9]{1,9}(:[0-9]{1,2}){0,2}|[0-9]{1,6}-[0-9]{1,2}(:[0-9]{1,2}){0,2}|(?i:unlimited|infinite))$`)
+
+// partitionRE is a partition, or a list of them separated by commas
+// (sbatch runs the job on the first that can take it).
+var partitionRE = regexp.MustCompile(`^[A-Za-z0-9_.\-]+(,[A-Za-z0-9_.\-]+)*$`)
+
+// CheckTime refuses a time limit sbatch's --time does not take.
+func CheckTime(s string) error {
+	if !timeRE.MatchString(s) {
+		return fmt.Errorf("write a time limit as sbatch takes it: minutes (90), hours:minutes:seconds (02:00:00), days-hours:minutes:seconds (1-12:00:00) or UNLIMITED")
+	}
+	return nil
+}
+
+// CheckPartition refuses a partition sbatch's --partition does not take:
+// a name of letters, digits, '_', '-' and '.', or several separated by
+// commas.
+func CheckPartition(s string) error {
+	if len(s) > 1024 || !partitionRE.MatchString(s) {
+		return fmt.Errorf("write a partition name (letters, digits, '_', '-' or '.'), or several separated by commas (gpu,cpu)")
+	}
+	return nil
+}
 
 // MemoryMB turns a memory estimate in bytes into the --mem figure of one
 // task: the estimate plus a quarter plus 256 MiB for the program itself,
@@ -187,6 +214,8 @@ func (p *Plan) check() error {
 		return bad("job name %q: use 1 to 64 letters, digits, '_', '-' or '.'", p.Name)
 	case !filepath.IsAbs(p.Dir):
 		return bad("folder %q must be absolute", p.Dir)
+	case strings.ContainsAny(p.Dir, "\\\t\n\r"):
+		return bad("folder %q holds a backslash, a tab or a line break, which a job's log path cannot hold (sbatch drops a backslash, and ends a #SBATCH line at a line break)", p.Dir)
 	case len(p.Tasks) == 0:
 		return bad("no tasks")
 	case strings.TrimSpace(p.TaskCommand) == "":
@@ -195,10 +224,10 @@ func (p *Plan) check() error {
 		return bad("memory per task is %d MiB; give the estimate through MemoryMB", p.MemoryMB)
 	case p.CPUs < 1:
 		return bad("CPUs per task is %d, want at least 1", p.CPUs)
-	case p.TimeLimit != "" && !timeRE.MatchString(p.TimeLimit):
-		return bad("time limit %q: write for example 02:00:00 or 1-00:00:00", p.TimeLimit)
-	case p.Partition != "" && !jobNameRE.MatchString(p.Partition):
-		return bad("partition %q: use letters, digits, '_', '-' or '.'", p.Partition)
+	case p.TimeLimit != "" && CheckTime(p.TimeLimit) != nil:
+		return bad("time limit %q: %v", p.TimeLimit, CheckTime(p.TimeLimit))
+	case p.Partition != "" && CheckPartition(p.Partition) != nil:
+		return bad("partition %q: %v", p.Partition, CheckPartition(p.Partition))
 	case p.MaxParallel < 0:
 		return bad("at most %d tasks at once: want 0 (no limit) or more", p.MaxParallel)
 	}
@@ -265,6 +294,31 @@ func writeAtomic(path string, data []byte, mode os.FileMode) error {
 	return nil
 }
 
+// logPattern is the value of a #SBATCH --output line for the log file
+// pattern file (task-%a.log) in folder dir, in sbatch's own quoting:
+// sbatch reads a #SBATCH line itself, not through a shell, and splits it
+// at blanks, takes double and single quotes as quotes and an unquoted '#' as the
+// start of a comment, so a folder "SDM runs" made the submission fail
+// ("Invalid directive found in batch script: runs/..."). Each run of
+// characters without '"' goes in double quotes and each '"' in single
+// quotes (quoted parts next to each other join, as in a shell). sbatch
+// then reads %a, %j ... in the whole path as its file name symbols, so a
+// '%' of the folder is written %%. A backslash cannot be written (sbatch
+// drops it): Plan.check refuses a folder holding one.
+func logPattern(dir, file string) string {
+	path := strings.ReplaceAll(dir, "%", "%%") + "/" + file
+	var b strings.Builder
+	for i, part := range strings.Split(path, `"`) {
+		if i > 0 {
+			b.WriteString(`'"'`)
+		}
+		if part != "" {
+			b.WriteString(`"` + part + `"`)
+		}
+	}
+	return b.String()
+}
+
 // Quote returns s quoted for a POSIX shell.
 func Quote(s string) string { return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'" }
 
@@ -287,7 +341,7 @@ func (p *Plan) arrayScript(f Files) string {
 	var b strings.Builder
 	b.WriteString("#!/bin/bash\n")
 	fmt.Fprintf(&b, "#SBATCH --job-name=%s\n", p.Name)
-	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "task-%a.log"))
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", logPattern(f.Logs, "task-%a.log"))
 	p.resources(&b)
 	b.WriteString(`# Written by areasweep. One array task runs line $SLURM_ARRAY_TASK_ID of the
 # manifest; it is skipped when its output folder holds the marker, which is
@@ -353,7 +407,7 @@ func (p *Plan) mergeScript(f Files) string {
 	var b strings.Builder
 	b.WriteString("#!/bin/bash\n")
 	fmt.Fprintf(&b, "#SBATCH --job-name=%s-merge\n", p.Name)
-	fmt.Fprintf(&b, "#SBATCH --output=%s\n", filepath.Join(f.Logs, "merge-%j.log"))
+	fmt.Fprintf(&b, "#SBATCH --output=%s\n", logPattern(f.Logs, "merge-%j.log"))
 	p.resources(&b)
 	if p.MergeAfterAny {
 		b.WriteString("# Written by areasweep. Runs after every array task ended, failed or not (afterany).\nset -euo pipefail\n")
@@ -490,19 +544,12 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 		return nil
 	}
 	for {
-		cmd := exec.CommandContext(ctx, "squeue", "-h", "-o", "%i", "-j", strings.Join(ids, ","))
-		cmd.Env = s.Env
-		var stderr bytes.Buffer
-		cmd.Stderr = &stderr
-		out, err := cmd.Output()
+		queued, err := s.Queued(ctx, ids...)
 		switch {
-		case err == nil && strings.TrimSpace(string(out)) == "":
-			return nil
-		case err != nil && strings.Contains(stderr.String(), "Invalid job id"):
-			// squeue says so once the jobs have left the queue.
+		case err == nil && len(queued) == 0:
 			return nil
 		case err != nil && !isExit(err) && ctx.Err() == nil:
-			return fmt.Errorf("slurm: running squeue: %w", err)
+			return err // squeue cannot run; one that answered with a complaint is asked again
 		}
 		select {
 		case <-ctx.Done():
@@ -510,6 +557,52 @@ func (s Submitter) Wait(ctx context.Context, interval time.Duration, jobs ...str
 		case <-time.After(interval):
 		}
 	}
+}
+
+// Queued returns the jobs of jobs (ids as sbatch gave them) that squeue
+// still lists, pending, running or completing: an array job counts while
+// any of its tasks is listed ("101_[2-3]", "101_4"). squeue's refusal of
+// an id the controller no longer knows ("Invalid job id") means that the
+// job left the queue; a squeue that exits with another complaint (the
+// controller cannot be reached) gives an error wrapping its
+// *exec.ExitError, with what it said, as does one that cannot run.
+func (s Submitter) Queued(ctx context.Context, jobs ...string) ([]string, error) {
+	if len(jobs) == 0 {
+		return nil, nil
+	}
+	args := []string{"-h", "-o", "%i", "-j", strings.Join(jobs, ",")}
+	if u, err := user.Current(); err == nil && u.Username != "" {
+		args = append(args, "-u", u.Username) // this user's: an id may come round again for another's
+	}
+	cmd := exec.CommandContext(ctx, "squeue", args...)
+	cmd.Env = s.Env
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	out, err := cmd.Output()
+	switch {
+	case err != nil && isExit(err) && strings.Contains(stderr.String(), "Invalid job id"):
+		return nil, nil
+	case err != nil && isExit(err):
+		msg := strings.TrimSpace(stderr.String())
+		if msg == "" {
+			msg = "no message"
+		}
+		return nil, fmt.Errorf("slurm: squeue -j %s: %s (%w)", strings.Join(jobs, ","), msg, err)
+	case err != nil:
+		return nil, fmt.Errorf("slurm: running squeue: %w", err)
+	}
+	listed := map[string]bool{}
+	for _, line := range strings.Fields(string(out)) {
+		id, _, _ := strings.Cut(line, "_")
+		listed[id] = true
+	}
+	var queued []string
+	for _, j := range jobs {
+		if listed[j] {
+			queued = append(queued, j)
+		}
+	}
+	return queued, nil
 }
 
 func isExit(err error) bool {

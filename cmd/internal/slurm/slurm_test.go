@@ -114,6 +114,8 @@ func TestPlanRefuses(t *testing.T) {
 		"partition":    func(p *Plan) { p.Partition = "a;b" },
 		"same out":     func(p *Plan) { p.Tasks[1].Out = p.Tasks[0].Out + "/" },
 		"bad shard":    func(p *Plan) { p.Tasks[0].Shard = 3 },
+		"backslash":    func(p *Plan) { p.Dir = `/scratch/a\b` },
+		"tab in dir":   func(p *Plan) { p.Dir = "/scratch/a\tb" },
 	}
 	for name, edit := range cases {
 		p := testPlan(dir, 2, "true")
@@ -121,6 +123,40 @@ func TestPlanRefuses(t *testing.T) {
 		if _, err := p.Write(); !errors.Is(err, ErrPlan) {
 			t.Errorf("%s: got %v, want ErrPlan", name, err)
 		}
+	}
+}
+
+// TestTimeAndPartition: SLURM's own forms of a time limit (minutes,
+// minutes:seconds, hours:minutes:seconds, days-hours, days-hours:minutes,
+// days-hours:minutes:seconds, UNLIMITED or INFINITE; sbatch's manual) and
+// a partition list (gpu,cpu) were refused as a bad plan, which the batch
+// reported as a bug (exit 3; found by the batch audit of 2026-12-05);
+// forms sbatch does not take are refused with an example.
+func TestTimeAndPartition(t *testing.T) {
+	for _, ok := range []string{"30", "30:00", "02:00:00", "1-0", "1-12:00", "2-00:00:00", "UNLIMITED", "infinite"} {
+		if err := CheckTime(ok); err != nil {
+			t.Errorf("time %q refused: %v", ok, err)
+		}
+	}
+	for _, bad := range []string{"2h", "::", "1-", "-5", "1:2:3:4", "02:00:00; rm", "unlimited!"} {
+		if err := CheckTime(bad); err == nil || !strings.Contains(err.Error(), "02:00:00") {
+			t.Errorf("time %q: %v, want a refusal with an example", bad, err)
+		}
+	}
+	for _, ok := range []string{"debug", "gpu,cpu", "long-2.x"} {
+		if err := CheckPartition(ok); err != nil {
+			t.Errorf("partition %q refused: %v", ok, err)
+		}
+	}
+	for _, bad := range []string{"a b", "gpu,", ",gpu", "a;b", "x'y"} {
+		if err := CheckPartition(bad); err == nil {
+			t.Errorf("partition %q accepted", bad)
+		}
+	}
+	p := testPlan(t.TempDir(), 2, "true")
+	p.TimeLimit, p.Partition = "UNLIMITED", "gpu,cpu"
+	if _, err := p.Write(); err != nil {
+		t.Errorf("plan with UNLIMITED and gpu,cpu: %v", err)
 	}
 }
 
