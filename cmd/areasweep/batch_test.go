@@ -174,6 +174,18 @@ func TestBatch(t *testing.T) {
 		if forbidden.MatchString(se) {
 			t.Errorf("--jobs %s: raw library text on stderr: %s", jobs, se)
 		}
+		// The answer: the summary's count sentence on standard error,
+		// as in summary_methods.md.
+		answer := ""
+		for _, l := range strings.Split(se, "\n") {
+			if a, ok := strings.CutPrefix(l, "answer: "); ok {
+				answer = a
+			}
+		}
+		md, _ := os.ReadFile(filepath.Join(outs[i], "summary_methods.md"))
+		if !strings.HasPrefix(answer, "AUC was ") || !strings.Contains(string(md), answer) {
+			t.Errorf("--jobs %s: answer line %q, want the count sentence of summary_methods.md", jobs, answer)
+		}
 	}
 	a, b := treeFiles(t, outs[0]), treeFiles(t, outs[1])
 	var names []string

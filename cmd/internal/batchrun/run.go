@@ -142,12 +142,18 @@ func runLocal(ctx context.Context, o *Options, w IO, studies []*study) error {
 		return n
 	}
 	if len(o.Only) == 0 {
-		if err := writeSummary(o, studies, errs); err != nil {
+		answer, err := writeSummary(o, studies, errs)
+		if err != nil {
 			if failed := countFailed(); failed > 0 && !fault.IsInternal(err) {
 				// The studies that failed are named all the same.
 				return fault.Shown(fmt.Errorf("%s; and %s", fault.UserText(err), fault.UserText(failedStudies(o, studies, errs, failed, false))))
 			}
 			return err
+		}
+		if !o.Quiet {
+			// The summary's count sentence, as a run ends on its
+			// headline.
+			fmt.Fprintf(w.ErrOut, "answer: %s\n", answer)
 		}
 		fmt.Fprintf(w.Out, "summary: %s\n", filepath.Join(o.Out, report.SummaryHTML))
 	}

@@ -24,8 +24,8 @@ var writeSummaryFiles = report.WriteSummary
 // --jobs or on resuming) and writes the summary into --out. A finished
 // study whose results.json cannot be read as a run wrote it (edited or
 // damaged since) gets its error in errs: the summary and the exit status
-// count it as failed.
-func writeSummary(o *Options, studies []*study, errs []error) error {
+// count it as failed. It returns the summary's count sentence.
+func writeSummary(o *Options, studies []*study, errs []error) (string, error) {
 	rs := make([]report.StudyResult, len(studies))
 	for i, st := range studies {
 		rs[i] = report.StudyResult{ID: st.id}
@@ -65,7 +65,7 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 	}
 	s, err := report.Summarize(rs)
 	if err != nil {
-		return fault.Internal(err)
+		return "", fault.Internal(err)
 	}
 	if s.Software == (report.Software{}) {
 		// No study gave results to take the version from: the one
@@ -73,7 +73,7 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 		s.Software = report.Software{Name: "areasweep", Version: o.Version}
 	}
 	if err := summaryInTheWay(o.Out); err != nil {
-		return err
+		return "", err
 	}
 	if err := writeSummaryFiles(o.Out, s); err != nil {
 		// The summary's files are each replaced whole; the studies'
@@ -84,9 +84,9 @@ func writeSummary(o *Options, studies []*study, errs []error) error {
 		} else {
 			what += outdir.FileSizeAdvice(err)
 		}
-		return fmt.Errorf("writing the summary into %s failed: %s; finished studies keep their folders, and running the same command again skips them and writes it", o.Out, what)
+		return "", fmt.Errorf("writing the summary into %s failed: %s; finished studies keep their folders, and running the same command again skips them and writes it", o.Out, what)
 	}
-	return nil
+	return s.CountSentence(), nil
 }
 
 // summaryInTheWay refuses, before any summary file is written, a folder

@@ -33,7 +33,7 @@ func TestSummaryStudyRemovedAfterFinishing(t *testing.T) {
 				os.Mkdir(dir, 0o755)
 			}
 			errs := []error{nil}
-			if err := writeSummary(&Options{Out: out}, []*study{{id: "s1", dir: dir}}, errs); err != nil {
+			if _, err := writeSummary(&Options{Out: out}, []*study{{id: "s1", dir: dir}}, errs); err != nil {
 				t.Fatal(err)
 			}
 			var de *damagedError
@@ -53,7 +53,7 @@ func TestSummaryStudyRemovedAfterFinishing(t *testing.T) {
 func TestSummaryVersionWithoutResults(t *testing.T) {
 	out := t.TempDir()
 	errs := []error{errors.New("model m: m.tif is not a raster GDAL can read")}
-	if err := writeSummary(&Options{Out: out, Version: "9.8.7"}, []*study{{id: "s1", dir: filepath.Join(out, "s1")}}, errs); err != nil {
+	if _, err := writeSummary(&Options{Out: out, Version: "9.8.7"}, []*study{{id: "s1", dir: filepath.Join(out, "s1")}}, errs); err != nil {
 		t.Fatal(err)
 	}
 	b, err := os.ReadFile(filepath.Join(out, "summary_methods.md"))
