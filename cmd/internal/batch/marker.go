@@ -68,6 +68,9 @@ func ReadMarker(dir string) (Marker, error) {
 		return nil, fmt.Errorf("batch: reading the completion marker %s: %w", MarkerPath(dir), err)
 	}
 	defer f.Close()
+	if st, err := f.Stat(); err == nil && st.IsDir() {
+		return nil, fmt.Errorf("%s is a folder, where areasweep keeps the study's completion marker (a file): it was not made by areasweep; move or rename it, then run again", MarkerPath(dir))
+	}
 	m := Marker{}
 	sc := bufio.NewScanner(f)
 	for sc.Scan() {
