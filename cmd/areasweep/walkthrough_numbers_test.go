@@ -55,6 +55,7 @@ var wtUnchecked = []struct{ text, why string }{
 	{"at or above P10", "the threshold's name"},
 	{"reaches y = 1 early", "the corner of the ROC plot, not a result"},
 	{"their 95% coverage (see \"How often the 95% intervals cover\")", "the nominal level of the intervals and a section's title, not a result"},
+	{"no calibrated test against 1 (see", "the ratio of a random ranking (1), not a result"},
 	{"SE is about 0.02", "a round description of every extent's SE (0.015 to 0.027 in the Key numbers table, whose cells are checked), not one value"},
 }
 
@@ -201,6 +202,7 @@ type wtPR struct {
 	CILow          float64 `json:"ci_low"`
 	CIHigh         float64 `json:"ci_high"`
 	PValue         float64 `json:"p_value"`
+	PRandom        float64 `json:"p_random"`
 	Iterations     int     `json:"iterations"`
 	TiedAtCrossing int     `json:"tied_at_crossing"`
 	DiscreteOK     bool    `json:"discrete_defined"`
@@ -579,6 +581,14 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 	// Key numbers.
 	frag(fmt.Sprintf("over the %d full-size paired resamples", r.Settings.PairedResamples))
 	frag(`"MTP" is the minimum training presence threshold and "P10" the 10th-percentile one`)
+	// The area-random test: good's ratio at E = 0.05 above random on
+	// every extent at the smallest p the draws resolve, 1/(draws + 1).
+	for _, e := range r.Extents {
+		if p := proc(sc("good", e.ID), e05); math.Abs(p.PRandom-1/float64(r.Settings.Iterations+1)) > 1e-15 {
+			bad("good's p_random on %s is not 1/(%d + 1)", e.ID, r.Settings.Iterations)
+		}
+	}
+	frag(fmt.Sprintf("at the smallest p its %d draws resolve, 1/%d", r.Settings.Iterations, r.Settings.Iterations+1))
 
 	// How to read them.
 	gb, gw := sc("good", "base"), sc("good", "whole_raster")
