@@ -22,6 +22,17 @@ const (
 	ReasonRandomNoDraw    = "no draw formed a ratio"
 )
 
+// MaxRandomDraws caps the draws of the area-random test (PRandom): B =
+// min(Settings.Iterations, MaxRandomDraws). Our choice: 10,000 draws
+// resolve p down to 1/10,001, far below the 0.025 the report reads it
+// at, and keep the shared draws' memory (8 bytes per draw, E and number
+// of test points) and a model's own draws' time bounded at --iterations
+// up to 1,000,000.
+const MaxRandomDraws = 10000
+
+// RandomDraws is the number of area-random draws for b iterations.
+func RandomDraws(b int) int { return min(b, MaxRandomDraws) }
+
 // MinorFloorShare is the share of an extent's area, per test point, that
 // the model's minimum may hold and still be read as part of a continuous
 // spread when the minimum is not a value a test point takes: at most a
@@ -171,7 +182,8 @@ func groupRatio(gs []curveGroup, before, n int, tau float64) (ratio float64, ok 
 // that the test points were drawn at random over the extent's area, the
 // model knowing nothing of where they are (each test point's value then
 // follows the area's distribution of values; the ratio's distribution is
-// that of n such draws). Each of B = s.Iterations draws places n points
+// that of n such draws). Each of B = RandomDraws(s.Iterations) draws
+// places n points
 // at x uniform on (0, 1] (the share of area at or above a random cell's
 // value is uniform where the values are continuous; a point in an atom
 // takes the atom's value, tied with the others there; areaModel); only
@@ -219,9 +231,9 @@ func areaRandom(a *Accumulator, c *cumulative, n int, s Settings, out []PartialR
 	}
 	var ratios [][]float64
 	if am.nearlyContinuous(n) {
-		ratios = sharedRatios(n, s.Iterations, es)
+		ratios = sharedRatios(n, RandomDraws(s.Iterations), es)
 	} else {
-		ratios = drawRatios(am, n, s.Iterations, s.Seed^randomStream, es)
+		ratios = drawRatios(am, n, RandomDraws(s.Iterations), s.Seed^randomStream, es)
 	}
 	for i := range out {
 		if !out[i].Formed {
@@ -261,7 +273,7 @@ type sharedEntry struct {
 var (
 	sharedDraws  sync.Map // "n B es" -> *sharedEntry
 	sharedCount  atomic.Int64
-	maxSharedKey = int64(4096) // entries kept (our choice; 8 KB each at B = 1000)
+	maxSharedKey = int64(1024) // entries kept (our choice; 8 KB per E each at B = 1000, 80 KB at the cap)
 )
 
 // sharedRatios are drawRatios of continuous values (no atom): they depend

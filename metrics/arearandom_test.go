@@ -198,6 +198,15 @@ func TestAreaRandomPower(t *testing.T) {
 	if b.PartialROC[0].PRandom != pa.PRandom {
 		t.Errorf("p_random %g then %g on the same study and seed", pa.PRandom, b.PartialROC[0].PRandom)
 	}
+	// The draws are capped at MaxRandomDraws whatever --iterations is.
+	s.Iterations = 3 * MaxRandomDraws
+	c, err := Score(acc, nil, test, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if pc := c.PartialROC[0]; pc.RandomFormed > MaxRandomDraws || pc.RandomFormed < MaxRandomDraws*99/100 || pc.PRandom != 1/float64(pc.RandomFormed+1) {
+		t.Errorf("at %d iterations: %d draws formed, p %g; want at most %d draws (most formed) and p = 1/(draws + 1)", s.Iterations, pc.RandomFormed, pc.PRandom, MaxRandomDraws)
+	}
 }
 
 // uniformCells is a landscape of cells of equal area with distinct values

@@ -449,6 +449,9 @@ type scoresView struct {
 	BootstrapNote string
 	// PublishedPSize is the constant of that name.
 	PublishedPSize string
+	// RandomDraws is the area-random test's number of draws
+	// (metrics.RandomDraws of the iterations).
+	RandomDraws int
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
 	NullNote string
@@ -487,7 +490,7 @@ func nullThresholdNote(r *Results) string {
 func scoresSection(r *Results) scoresView {
 	st := r.Settings
 	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
-		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize}
+		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize, RandomDraws: metrics.RandomDraws(st.Iterations)}
 	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // joinList joins items as "a, b and c".
@@ -233,7 +234,7 @@ func methodsScores(b *strings.Builder, r *Results) {
 		case fewB:
 			fmt.Fprintf(b, "; neither is given where fewer than %d resamples formed a ratio, our cut-off", MinPercentileResamples)
 		}
-		fmt.Fprintf(b, "); that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in %s in our simulation), so no statement of skill rests on them; as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; Davison & Hinkley 1997), which on a model with no skill fell below 0.05 in about 5%% of studies in our simulation", PublishedPSize, st.Iterations, Plural(st.Iterations))
+		fmt.Fprintf(b, "); that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in %s in our simulation), so no statement of skill rests on them; as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; Davison & Hinkley 1997), which on a model with no skill fell below 0.05 in about 5%% of studies in our simulation", PublishedPSize, metrics.RandomDraws(st.Iterations), Plural(metrics.RandomDraws(st.Iterations)))
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
