@@ -287,8 +287,9 @@ func sharedRatios(n, B int, es []float64) [][]float64 {
 	return e.ratios
 }
 
-// drawRatios draws B sets of n points at random over the area m (PCG
-// seeded with (seed, seed xor randomStream)) and returns, per E of es,
+// drawRatios draws B sets of n points at random over the area m (set i
+// from PCG seeded with splitmix64 of seed xor i times the golden ratio's
+// 64 bits and of seed xor randomStream xor i) and returns, per E of es,
 // the ratios of the sets that formed one, ascending.
 func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 	taus := make([]float64, len(es))
@@ -298,7 +299,12 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		need = max(need, n-int(math.Ceil(taus[i]))+1)
 	}
 	need = min(need, n)
-	rng := rand.New(rand.NewPCG(seed, seed^randomStream))
+	// Each set has a stream of its own (PCG seeded with splitmix64 of the
+	// seed and the set's number), so how deep a set is drawn (which
+	// depends on the largest E of es) does not move the draws of the
+	// next: the ratios at one E do not depend on the other E of es.
+	src := rand.NewPCG(0, 0)
+	rng := rand.New(src)
 	type pt struct {
 		x    float64
 		atom int
@@ -314,6 +320,7 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		out[i] = make([]float64, 0, B)
 	}
 	for it := 0; it < B; it++ {
+		src.Seed(splitmix64(seed^uint64(it)*0x9E3779B97F4A7C15), splitmix64(seed^randomStream^uint64(it)))
 		pts = pts[:0]
 		// -log x_(n-i) = sum of E_l / (n - l) for l <= i, E_l standard
 		// exponential (Renyi's representation): x is multiplied by
@@ -359,4 +366,14 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		slices.Sort(out[i])
 	}
 	return out
+}
+
+// splitmix64 is the output function of Steele, Lea & Flood's SplitMix64
+// (2014): a bijective mix of x, used to seed each area-random set's
+// stream from the seed and the set's number.
+func splitmix64(x uint64) uint64 {
+	x += 0x9E3779B97F4A7C15
+	x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9
+	x = (x ^ (x >> 27)) * 0x94D049BB133111EB
+	return x ^ (x >> 31)
 }
