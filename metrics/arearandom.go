@@ -50,9 +50,11 @@ type areaModel struct{ lo, hi []float64 }
 //     own) has atoms at the layout values and its other area spread
 //     continuously; but its minimum over the whole raster (s.ModelMin,
 //     area s.ModelMinArea) may be a floor of many cells: when it is this
-//     extent's minimum, not a layout value, and its area exceeds
-//     MinorFloorShare / n of the extent, that floor is not known apart
-//     from the values just above it.
+//     extent's minimum, not a layout value, and its area in the extent
+//     (at most s.ModelMinArea and at most the spread area of the
+//     extent's lowest histogram bin) may exceed MinorFloorShare / n of
+//     the extent, that floor is not known apart from the values just
+//     above it.
 func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, string) {
 	W := c.totalAreaF
 	var m areaModel
@@ -98,9 +100,15 @@ func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, 
 		}
 	}
 	if s.ModelMinArea > 0 && a.min == s.ModelMin {
+		// The floor's area in this extent is at most the raster's at
+		// the minimum and at most the spread area (less the layout
+		// values) of the extent's lowest histogram bin, which holds it.
+		i0, _ := a.occupied()
+		spread, _, _ := a.pointMasses(i0, 1)
+		floor := min(s.ModelMinArea, spread[0])
 		if j := sort.SearchFloat64s(d, a.min); !(j < len(d) && d[j] == a.min) &&
-			float64(s.ModelMinArea) > MinorFloorShare/float64(n)*W {
-			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(s.ModelMinArea)/W, MinorFloorShare, n)
+			float64(floor) > MinorFloorShare/float64(n)*W {
+			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(floor)/W, MinorFloorShare, n)
 		}
 	}
 	return m, ""

@@ -384,3 +384,51 @@ func TestAreaRandomHiddenFloor(t *testing.T) {
 		t.Errorf("hidden floor: size %.3f, want at least 0.09 (the README's caution says the test is too liberal here: rewrite it)", size)
 	}
 }
+
+// TestAreaRandomFloorInExtent: the floor's area that the refusal reads
+// is bounded by the extent's own area near its minimum (the spread area
+// of its lowest histogram bin), not only by the whole raster's area at
+// the minimum (Settings.ModelMinArea): a point buffer that holds two
+// cells of a floor covering half the raster is computed, and the note of
+// one holding 400 of 4,400 cells gives at most 100% (it read "holds up
+// to 139% of the extent's area" on a 10 km point buffer of a real run).
+func TestAreaRandomFloorInExtent(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	for _, c := range []struct {
+		floorCells int
+		refused    bool
+	}{{2, false}, {400, true}} {
+		vals := make([]float64, 4000, 4000+c.floorCells)
+		for i := range vals {
+			vals[i] = 0.1 + 0.9*rng.Float64()
+		}
+		test := make([]float64, 60)
+		for i := range test {
+			test[i] = vals[rng.IntN(len(vals))]
+		}
+		for range c.floorCells {
+			vals = append(vals, 0)
+		}
+		lay, err := NewLayout(test, 4096)
+		if err != nil {
+			t.Fatal(err)
+		}
+		acc := lay.NewAccumulator()
+		for _, v := range vals {
+			acc.Add(v, 1)
+		}
+		// The raster's floor: 100,000 cells at 0 (our choice: far more
+		// than the extent holds).
+		sc, err := Score(acc, nil, test, Settings{E: []float64{0.05}, Iterations: 100, ModelMin: 0, ModelMinArea: 100000})
+		if err != nil {
+			t.Fatal(err)
+		}
+		pr := sc.PartialROC[0]
+		switch {
+		case !c.refused && pr.PRandom == 0:
+			t.Errorf("%d floor cells of 4,000: refused (%q), want a p (their share is below 0.1 / 60)", c.floorCells, pr.PRandomNote)
+		case c.refused && (pr.PRandom != 0 || !strings.Contains(pr.PRandomNote, "holds up to 9.09% of the extent's area")):
+			t.Errorf("%d floor cells of 4,400: p %g, note %q, want refused with 'holds up to 9.09%% of the extent's area' (400 / 4,400, worked by hand)", c.floorCells, pr.PRandom, pr.PRandomNote)
+		}
+	}
+}
