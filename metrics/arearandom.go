@@ -61,9 +61,11 @@ type areaModel struct{ lo, hi []float64 }
 //     own) has atoms at the layout values and its other area spread
 //     continuously; but its minimum over the whole raster (s.ModelMin,
 //     area s.ModelMinArea) may be a floor of many cells: when it is this
-//     extent's minimum, not a layout value, and its area exceeds
-//     MinorFloorShare / n of the extent, that floor is not known apart
-//     from the values just above it.
+//     extent's minimum, not a layout value, and its area in the extent
+//     (at most s.ModelMinArea and at most the spread area of the
+//     extent's lowest histogram bin) may exceed MinorFloorShare / n of
+//     the extent, that floor is not known apart from the values just
+//     above it.
 func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, string) {
 	W := c.totalAreaF
 	var m areaModel
@@ -109,9 +111,15 @@ func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, 
 		}
 	}
 	if s.ModelMinArea > 0 && a.min == s.ModelMin {
+		// The floor's area in this extent is at most the raster's at
+		// the minimum and at most the spread area (less the layout
+		// values) of the extent's lowest histogram bin, which holds it.
+		i0, _ := a.occupied()
+		spread, _, _ := a.pointMasses(i0, 1)
+		floor := min(s.ModelMinArea, spread[0])
 		if j := sort.SearchFloat64s(d, a.min); !(j < len(d) && d[j] == a.min) &&
-			float64(s.ModelMinArea) > MinorFloorShare/float64(n)*W {
-			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(s.ModelMinArea)/W, MinorFloorShare, n)
+			float64(floor) > MinorFloorShare/float64(n)*W {
+			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(floor)/W, MinorFloorShare, n)
 		}
 	}
 	return m, ""
@@ -299,8 +307,9 @@ func sharedRatios(n, B int, es []float64) [][]float64 {
 	return e.ratios
 }
 
-// drawRatios draws B sets of n points at random over the area m (PCG
-// seeded with (seed, seed xor randomStream)) and returns, per E of es,
+// drawRatios draws B sets of n points at random over the area m (set i
+// from PCG seeded with splitmix64 of seed xor i times the golden ratio's
+// 64 bits and of seed xor randomStream xor i) and returns, per E of es,
 // the ratios of the sets that formed one, ascending.
 func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 	taus := make([]float64, len(es))
@@ -310,7 +319,12 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		need = max(need, n-int(math.Ceil(taus[i]))+1)
 	}
 	need = min(need, n)
-	rng := rand.New(rand.NewPCG(seed, seed^randomStream))
+	// Each set has a stream of its own (PCG seeded with splitmix64 of the
+	// seed and the set's number), so how deep a set is drawn (which
+	// depends on the largest E of es) does not move the draws of the
+	// next: the ratios at one E do not depend on the other E of es.
+	src := rand.NewPCG(0, 0)
+	rng := rand.New(src)
 	type pt struct {
 		x    float64
 		atom int
@@ -326,6 +340,7 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		out[i] = make([]float64, 0, B)
 	}
 	for it := 0; it < B; it++ {
+		src.Seed(splitmix64(seed^uint64(it)*0x9E3779B97F4A7C15), splitmix64(seed^randomStream^uint64(it)))
 		pts = pts[:0]
 		// -log x_(n-i) = sum of E_l / (n - l) for l <= i, E_l standard
 		// exponential (Renyi's representation): x is multiplied by
@@ -371,4 +386,14 @@ func drawRatios(m areaModel, n, B int, seed uint64, es []float64) [][]float64 {
 		slices.Sort(out[i])
 	}
 	return out
+}
+
+// splitmix64 is the output function of Steele, Lea & Flood's SplitMix64
+// (2014): a bijective mix of x, used to seed each area-random set's
+// stream from the seed and the set's number.
+func splitmix64(x uint64) uint64 {
+	x += 0x9E3779B97F4A7C15
+	x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9
+	x = (x ^ (x >> 27)) * 0x94D049BB133111EB
+	return x ^ (x >> 31)
 }

@@ -449,15 +449,15 @@ type scoresView struct {
 	BootstrapNote string
 	// PublishedPSize is the constant of that name.
 	PublishedPSize string
-	// RandomDraws is the area-random test's number of draws
-	// (metrics.RandomDraws of the iterations).
-	RandomDraws int
 	// NullNote, when a distance-only null was scored, says why its
 	// threshold rows omit nearly every test record.
 	NullNote string
 	// TooFewNote, when a row of PartialROC leaves out the percentiles
 	// and P (BootstrapReadable), says why; "" otherwise.
 	TooFewNote string
+	// RandomNote describes the table's last column, the area-random
+	// test, or says that the file holds none (randomTestAbsent).
+	RandomNote string
 	Main       htmlTable
 	PartialROC htmlTable
 	Thresholds htmlTable
@@ -490,7 +490,12 @@ func nullThresholdNote(r *Results) string {
 func scoresSection(r *Results) scoresView {
 	st := r.Settings
 	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
-		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize, RandomDraws: metrics.RandomDraws(st.Iterations)}
+		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize}
+	draws := metrics.RandomDraws(st.Iterations)
+	v.RandomNote = fmt.Sprintf("The last column is a calibrated test: the one-sided p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; a model that knows nothing of where the species is), which on a model with no skill falls below 0.05 in about 5%% of studies (README).", draws, Plural(draws))
+	if randomTestAbsent(r) {
+		v.RandomNote = "The last column is empty: " + noRandomTest + "."
+	}
 	head := []string{"model", "extent", "extent area (km²)", "test records inside", "training records inside", "scored",
 		"AUC", "AUC standard error", "AUC with cells unweighted", "AUC on the training records", "AUC resample SD", "Boyce index"}
 	var rows [][]cell

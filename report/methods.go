@@ -234,7 +234,13 @@ func methodsScores(b *strings.Builder, r *Results) {
 		case fewB:
 			fmt.Fprintf(b, "; neither is given where fewer than %d resamples formed a ratio, our cut-off", MinPercentileResamples)
 		}
-		fmt.Fprintf(b, "); that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in %s in our simulation), so no statement of skill rests on them; as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; Davison & Hinkley 1997), which on a model with no skill fell below 0.05 in about 5%% of studies in our simulation", PublishedPSize, metrics.RandomDraws(st.Iterations), Plural(metrics.RandomDraws(st.Iterations)))
+		fmt.Fprintf(b, "); that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in %s in our simulation), so no statement of skill rests on them", PublishedPSize)
+		if randomTestAbsent(r) {
+			b.WriteString("; " + noRandomTest)
+		} else {
+			draws := metrics.RandomDraws(st.Iterations)
+			fmt.Fprintf(b, "; as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; Davison & Hinkley 1997), which on a model with no skill fell below 0.05 in about 5%% of studies in our simulation", draws, Plural(draws))
+		}
 	}
 	b.WriteString("; omission rates at the minimum and 10th-percentile training presence")
 	if len(st.FixedThresholds) > 0 {
@@ -588,6 +594,27 @@ var references = []string{
 	"Legendre, P. (2005) Species associations: the Kendall coefficient of concordance revisited. Journal of Agricultural, Biological and Environmental Statistics 10: 226-245.",
 	"Peterson, A.T., Papeş, M. & Soberón, J. (2008) Rethinking receiver operating characteristic analysis applications in ecological niche modeling. Ecological Modelling 213: 63-72.",
 	student1908,
+}
+
+// noRandomTest says that a results.json holds no area-random test
+// (randomTestAbsent).
+const noRandomTest = "this results.json holds no test of the ratio against random (it was written before areasweep computed one; rerun areasweep run to get it)"
+
+// randomTestAbsent tells whether r holds a defined partial ROC ratio but
+// no area-random test anywhere: a run that computes the test writes, on
+// every defined ratio, p_random or p_random_note; a results.json written
+// before it holds neither, and its text must not say the test is given.
+func randomTestAbsent(r *Results) bool {
+	defined := false
+	for _, sc := range r.Scores {
+		for _, pr := range sc.PartialROC {
+			if pr.PRandom > 0 || pr.PRandomNote != "" {
+				return false
+			}
+			defined = defined || (sc.Scored && pr.Defined)
+		}
+	}
+	return defined
 }
 
 // randomTestCount says on how many of the extents where model's partial

@@ -2276,6 +2276,9 @@ func TestMethodsLeftOutCounts(t *testing.T) {
 // area-random p as the test; the table gives that p, or says why not.
 func TestPublishedPCaution(t *testing.T) {
 	r := analyzedSample(t)
+	// The sample predates the test (TestRandomTestAbsentInOldFile); a
+	// note on one ratio makes it a file that holds it.
+	r.Scores[1].PartialROC[0].PRandomNote = "a reason"
 	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)",
 		"as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (200 draws; Davison & Hinkley 1997)"}, nil)
 	r.Scores[0].PartialROC[0].PRandom = 0.0123
@@ -2298,4 +2301,25 @@ func TestPublishedPCaution(t *testing.T) {
 	_, page := writtenPage(t, r)
 	checkWords(t, "table", page, []string{">0.012<", "not computed: a reason"}, nil)
 	checkWords(t, "report page", page, []string{"It is no calibrated test: on a model with no skill it falls below 0.05 in " + PublishedPSize}, nil)
+}
+
+// TestRandomTestAbsentInOldFile: a results.json written before areasweep
+// computed the area-random test (no partial ROC entry has p_random or
+// p_random_note, as the sample's) has no such test to report, so neither
+// the methods text nor the report's partial ROC table says one is given
+// (they said "we give the one-sided Monte Carlo p-value" over a column of
+// dashes); they say the file holds none and how to get it. With one p,
+// the test is described again.
+func TestRandomTestAbsentInOldFile(t *testing.T) {
+	r := analyzedSample(t)
+	given := []string{"as the test of the ratio against random we give the one-sided Monte Carlo p-value"}
+	tableGiven := []string{"The last column is a calibrated test"}
+	none := "this results.json holds no test of the ratio against random (it was written before areasweep computed one; rerun areasweep run to get it)"
+	checkWords(t, "methods, old file", methodsText(r), []string{none}, given)
+	_, page := writtenPage(t, r)
+	checkWords(t, "table note, old file", page, []string{"The last column is empty: " + none}, tableGiven)
+	r.Scores[0].PartialROC[0].PRandomNote = "a reason"
+	checkWords(t, "methods, new file", methodsText(r), given, []string{none})
+	_, page = writtenPage(t, r)
+	checkWords(t, "table note, new file", page, tableGiven, []string{none})
 }

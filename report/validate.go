@@ -417,6 +417,34 @@ type validator struct {
 	E []float64
 	// frac is settings.resample_fraction.
 	frac float64
+	// iters is settings.iterations.
+	iters int
+}
+
+// randomTest checks the area-random test of partial ROC entry p (at pa):
+// a run writes p_random = (1 + k) / (1 + random_draws_formed) with k at
+// most the formed draws, these at most settings.iterations, only on a
+// defined ratio, and p_random_note only where p_random is absent.
+func (v *validator) randomTest(pa string, p PartialROC) {
+	d := p.RandomFormed
+	switch {
+	case d < 0:
+		v.fail(pa+".random_draws_formed", "%d is negative", d)
+	case d > metrics.RandomDraws(v.iters):
+		v.fail(pa+".random_draws_formed", "%d is more than the draws a run makes, %d (settings.iterations, at most %d)", d, metrics.RandomDraws(v.iters), metrics.MaxRandomDraws)
+	case p.PRandom == 0:
+	case !p.Defined:
+		v.fail(pa+".p_random", "is given on an undefined ratio; a run tests only a defined ratio against random")
+	case p.PRandomNote != "":
+		v.fail(pa+".p_random_note", "is given beside p_random; a run writes it only where p_random is absent")
+	case d == 0:
+		v.fail(pa+".random_draws_formed", "is 0 beside p_random %g; a p is formed from at least one draw", p.PRandom)
+	default:
+		k := p.PRandom*float64(d+1) - 1
+		if k < -1e-6 || math.Abs(k-math.Round(k)) > 1e-6 {
+			v.fail(pa+".p_random", "%g is not (1 + k) / (1 + %d) for a count k of draws, as a Monte Carlo p-value from %d formed draws is", p.PRandom, d, d)
+		}
+	}
 }
 
 // partialEs lists the E of each partial ROC entry.
@@ -515,7 +543,7 @@ func (v *validator) settings(s Settings) {
 			v.fail(fmt.Sprintf("settings.e[%d]", i), "%v is given twice; a run scores each E once", e)
 		}
 	}
-	v.E, v.frac = s.E, s.ResampleFraction
+	v.E, v.frac, v.iters = s.E, s.ResampleFraction, s.Iterations
 	// The verdicts are recomputed against these: a tolerance of 0 or
 	// below (one a run refuses) would turn them upside down ("against the
 	// tolerance of ±-1").
@@ -585,9 +613,7 @@ func (v *validator) score(at string, s Score) {
 		v.between(pa+".ci_high", p.CIHigh, 0, maxPartialRatio)
 		v.unit(pa+".p_value", p.PValue)
 		v.unit(pa+".p_random", p.PRandom)
-		if p.RandomFormed < 0 || (p.PRandom > 0 && float64(p.RandomFormed+1)*p.PRandom < 1-1e-9) {
-			v.fail(pa, "p_random %g from %d formed draws is not a Monte Carlo p-value (at least 1/(draws+1))", p.PRandom, p.RandomFormed)
-		}
+		v.randomTest(pa, p)
 		if p.Iterations < 0 || p.NotFormed < 0 || p.NotFormed > p.Iterations {
 			v.fail(pa, "iterations %d and iterations_not_formed %d do not fit", p.Iterations, p.NotFormed)
 		}

@@ -72,6 +72,33 @@ func TestValidateRefuses(t *testing.T) {
 		{"AUC resample SD above 1", func(r *Results) { firstScored(r).AUCBootSD = 3 }, "auc_boot_sd: 3 is outside [0, 1]"},
 		// The report gives the bootstrap's interval and P by it.
 		{"resample size edited", func(r *Results) { firstScored(r).PartialROC[0].ResampleSize = 40 }, "partial_roc[0].resample_size: is 40, but a resample of 0.5 of the"},
+		// The area-random test (found by the p_random audit; accepted
+		// before): more formed draws than settings.iterations drew, a p
+		// on an undefined ratio (the report would show it, and the
+		// model-above-null reading rest on it), a p and a note saying
+		// why there is none, a p and no formed draw, a p off the
+		// (1 + k) / (1 + draws) grid.
+		{"random draws above iterations", func(r *Results) {
+			p := &firstScored(r).PartialROC[0]
+			p.PRandom, p.RandomFormed = 1e-9, 1_000_000_000
+		}, "partial_roc[0].random_draws_formed: 1000000000 is more than the draws a run makes"},
+		{"p_random on an undefined ratio", func(r *Results) {
+			p := &firstScored(r).PartialROC[0]
+			p.Defined, p.PRandom, p.RandomFormed = false, 0.5, 1
+		}, "partial_roc[0].p_random: is given on an undefined ratio"},
+		{"p_random and a note", func(r *Results) {
+			p := &firstScored(r).PartialROC[0]
+			p.Defined, p.PRandom, p.RandomFormed, p.PRandomNote = true, 0.5, 1, "no draw formed a ratio"
+		}, "partial_roc[0].p_random_note: is given beside p_random"},
+		{"p_random without draws", func(r *Results) {
+			p := &firstScored(r).PartialROC[0]
+			p.Defined, p.PRandom, p.RandomFormed = true, 1, 0
+		}, "partial_roc[0].random_draws_formed: is 0 beside p_random"},
+		{"p_random off the grid", func(r *Results) {
+			p := &firstScored(r).PartialROC[0]
+			p.Defined, p.PRandom, p.RandomFormed = true, 0.3, 3
+		}, "partial_roc[0].p_random: 0.3 is not (1 + k) / (1 + 3)"},
+		{"negative random draws", func(r *Results) { firstScored(r).PartialROC[0].RandomFormed = -3 }, "partial_roc[0].random_draws_formed: -3 is negative"},
 		// Accepted before; found by editing results.json at random.
 		{"paired negative SE", func(r *Results) { r.Paired[0].SE = -0.1 }, ".se: -0.1"},
 		{"paired negative resamples", func(r *Results) { r.Paired[0].Resamples = -4 }, ".resamples: -4"},
