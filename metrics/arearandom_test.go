@@ -76,11 +76,7 @@ func TestAreaRandomModels(t *testing.T) {
 	}
 	score := func(vals, test []float64, withSet bool, s Settings) PartialROC {
 		t.Helper()
-		lay, err := NewLayout(test, 4096) // the pipeline's histogram
-		if err != nil {
-			t.Fatal(err)
-		}
-		acc := lay.NewAccumulator()
+		acc := unitCells(t, test, vals, 4096) // the pipeline's histogram
 		if withSet {
 			var set ValueSet
 			var cache ValueCache
@@ -91,9 +87,6 @@ func TestAreaRandomModels(t *testing.T) {
 				t.Fatal("no value set")
 			}
 			acc.SetModelValues(distinct)
-		}
-		for _, v := range vals {
-			acc.Add(v, 1)
 		}
 		if s.E == nil {
 			s.E = []float64{0.1}
@@ -219,15 +212,22 @@ func uniformCells(t *testing.T, rng *rand.Rand, cells int) ([]float64, *Accumula
 	for i := range vals {
 		vals[i] = rng.Float64()
 	}
-	lay, err := NewLayout(vals, 256)
+	return vals, unitCells(t, vals, vals, 256)
+}
+
+// unitCells is the accumulator of cells of equal area (1) holding values
+// cells, on a layout of the values layout with histBins histogram bins.
+func unitCells(t *testing.T, layout, cells []float64, histBins int) *Accumulator {
+	t.Helper()
+	lay, err := NewLayout(layout, histBins)
 	if err != nil {
 		t.Fatal(err)
 	}
 	acc := lay.NewAccumulator()
-	for _, v := range vals {
+	for _, v := range cells {
 		acc.Add(v, 1)
 	}
-	return vals, acc
+	return acc
 }
 
 // TestAreaRandomNullNumpy: the ratios of areasweep's draws of random test
@@ -368,14 +368,7 @@ func TestAreaRandomHiddenFloor(t *testing.T) {
 		for i := range test {
 			test[i] = vals[rng.IntN(cells)]
 		}
-		lay, err := NewLayout(test, 4096)
-		if err != nil {
-			t.Fatal(err)
-		}
-		acc := lay.NewAccumulator()
-		for _, v := range vals {
-			acc.Add(v, 1)
-		}
+		acc := unitCells(t, test, vals, 4096)
 		sc, err := Score(acc, nil, test, Settings{E: []float64{0.05}, Iterations: 200, Seed: uint64(rep), ModelMin: -1, ModelMinArea: 1})
 		if err != nil {
 			t.Fatal(err)
@@ -418,14 +411,7 @@ func TestAreaRandomFloorInExtent(t *testing.T) {
 		for range c.floorCells {
 			vals = append(vals, 0)
 		}
-		lay, err := NewLayout(test, 4096)
-		if err != nil {
-			t.Fatal(err)
-		}
-		acc := lay.NewAccumulator()
-		for _, v := range vals {
-			acc.Add(v, 1)
-		}
+		acc := unitCells(t, test, vals, 4096)
 		// The raster's floor: 100,000 cells at 0 (our choice: far more
 		// than the extent holds).
 		sc, err := Score(acc, nil, test, Settings{E: []float64{0.05}, Iterations: 100, ModelMin: 0, ModelMinArea: 100000})
