@@ -598,7 +598,8 @@ func (s *BatchSummary) Models() []string {
 }
 
 // EffectOrder returns the studies that have at least one defined extent
-// effect, sorted by their sort key ascending (ties by id): the study's
+// effect, sorted by their sort key ascending (ties by id, numbers in ids
+// compared as numbers: sp2 before sp10, see idCompare): the study's
 // effect of largest magnitude among its models, with its sign. It is the
 // order of the figure's rows, from the bottom up.
 func (s *BatchSummary) EffectOrder() []string {
@@ -625,13 +626,49 @@ func (s *BatchSummary) EffectOrder() []string {
 		if c := cmp.Compare(a.key, b.key); c != 0 {
 			return c
 		}
-		return strings.Compare(a.id, b.id)
+		return idCompare(a.id, b.id)
 	})
 	ids := make([]string, len(out))
 	for i, k := range out {
 		ids[i] = k.id
 	}
 	return ids
+}
+
+// idCompare orders study ids as a reader counts them: runs of ASCII
+// digits compare as the numbers they write (sp2 before sp10, leading
+// zeros aside), everything else byte by byte; ids equal so (sp02 and
+// sp2) fall back to their bytes, so the order is total.
+func idCompare(a, b string) int {
+	isDigit := func(c byte) bool { return '0' <= c && c <= '9' }
+	i, j := 0, 0
+	for i < len(a) && j < len(b) {
+		if !isDigit(a[i]) || !isDigit(b[j]) {
+			if a[i] != b[j] {
+				return cmp.Compare(a[i], b[j])
+			}
+			i, j = i+1, j+1
+			continue
+		}
+		i0, j0 := i, j
+		for i < len(a) && isDigit(a[i]) {
+			i++
+		}
+		for j < len(b) && isDigit(b[j]) {
+			j++
+		}
+		na, nb := strings.TrimLeft(a[i0:i], "0"), strings.TrimLeft(b[j0:j], "0")
+		if c := cmp.Compare(len(na), len(nb)); c != 0 {
+			return c
+		}
+		if c := strings.Compare(na, nb); c != 0 {
+			return c
+		}
+	}
+	if c := cmp.Compare(len(a)-i, len(b)-j); c != 0 {
+		return c
+	}
+	return strings.Compare(a, b)
 }
 
 // Files of a batch summary, written into the batch's output folder beside

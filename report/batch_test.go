@@ -329,6 +329,36 @@ func TestEffectOrder(t *testing.T) {
 	if got := s.EffectOrder(); !slices.Equal(got, want) {
 		t.Errorf("order %v, want %v", got, want)
 	}
+	// Ties among numbered ids: in the order of their numbers.
+	var tied []StudyResult
+	for _, id := range []string{"sp10", "sp2", "sp1", "sp02b", "sp2a"} {
+		tied = append(tied, StudyResult{ID: id, Results: handStudy(DefaultToleranceAUC, handModel{name: "m1", aucs: map[string]float64{"base": 0.7, "wide": 0.78},
+			effects: []effect{{"wide", 0.08, 0.07, 0.09}}})})
+	}
+	if s, err = Summarize(tied); err != nil {
+		t.Fatal(err)
+	}
+	if got, want := s.EffectOrder(), []string{"sp1", "sp2", "sp2a", "sp02b", "sp10"}; !slices.Equal(got, want) {
+		t.Errorf("tied order %v, want %v", got, want)
+	}
+}
+
+// TestIDCompare checks the order of study ids in the effect figure's ties.
+func TestIDCompare(t *testing.T) {
+	for _, c := range []struct {
+		a, b string
+		want int
+	}{
+		{"sp2", "sp10", -1}, {"sp10", "sp2", 1}, {"sp2", "sp2", 0},
+		{"sp02", "sp2", -1}, // equal numbers: by bytes
+		{"a", "a1", -1}, {"a9b", "a10a", -1}, {"b1", "a2", 1},
+		{"x100000000000000000000001", "x99", 1}, // longer than any integer type
+		{"", "a", -1}, {"10", "9", 1},
+	} {
+		if got := idCompare(c.a, c.b); got != c.want {
+			t.Errorf("idCompare(%q, %q) = %d, want %d", c.a, c.b, got, c.want)
+		}
+	}
 }
 
 // TestSummarizeMistakes checks the programmer errors.
