@@ -197,8 +197,11 @@ func runSlurm(ctx context.Context, o *Options, streams IO, studies []*study) err
 		return nil
 	}
 	defer note("the job files are in " + slurmDir(o.Out) + "; a job sbatch accepted before the signal is in the queue (squeue shows it) and runs: see squeue before running this command again")()
-	sub, err := (slurm.Submitter{}).Submit(ctx, p, files, pending)
-	recordSubmitted(o, sub)
+	// Each job is recorded as soon as sbatch accepts it: a stop signal
+	// ends the process at once, and one arriving while the merge job was
+	// submitted lost the array's id (the next --submit then could not
+	// see its tasks queued).
+	sub, err := (slurm.Submitter{Accepted: func(sub slurm.Submission) { recordSubmitted(o, sub) }}).Submit(ctx, p, files, pending)
 	if err != nil {
 		return submitFailed(err, sub, files)
 	}

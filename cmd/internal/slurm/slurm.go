@@ -473,6 +473,12 @@ type Submission struct {
 // the commands (for example to set SLURM_CONF).
 type Submitter struct {
 	Env []string
+	// Accepted, when not nil, is called by Submit with the submission so
+	// far each time sbatch accepts a job (the array's, then the merge
+	// job's), before the next sbatch runs: a caller records the array's
+	// id there, so that a stop signal while the merge job is submitted
+	// does not lose it.
+	Accepted func(Submission)
 }
 
 // Submit submits the array for the given task indices (normally
@@ -487,6 +493,9 @@ func (s Submitter) Submit(ctx context.Context, p *Plan, f Files, ids []int) (Sub
 			return sub, err
 		}
 		sub.ArrayJob = jid
+		if s.Accepted != nil {
+			s.Accepted(sub)
+		}
 	}
 	if f.Merge != "" {
 		args := []string{f.Merge}
@@ -502,6 +511,9 @@ func (s Submitter) Submit(ctx context.Context, p *Plan, f Files, ids []int) (Sub
 			return sub, err
 		}
 		sub.MergeJob = jid
+		if s.Accepted != nil {
+			s.Accepted(sub)
+		}
 	}
 	return sub, nil
 }

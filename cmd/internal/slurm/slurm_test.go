@@ -8,6 +8,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -301,5 +302,49 @@ func TestSubmitErrorQuotesCommand(t *testing.T) {
 	want := "sbatch --parsable --array=1-2 array.sh: sbatch: error: no cluster here"
 	if !errors.Is(err, ErrSubmit) || !strings.Contains(err.Error(), want) {
 		t.Errorf("error %v, want ErrSubmit quoting %q", err, want)
+	}
+}
+
+// TestSubmitReportsEachAcceptedJob: Accepted sees the array's id before
+// the merge job is submitted (a stop signal ends the process at once, so
+// the caller records it there): a fake sbatch accepts the array (id 41)
+// and refuses the merge job, and Accepted has been called once with the
+// array alone; with both accepted it is called again with both.
+func TestSubmitReportsEachAcceptedJob(t *testing.T) {
+	for _, mergeOK := range []bool{false, true} {
+		bin := t.TempDir()
+		count := filepath.Join(bin, "count")
+		script := "#!/bin/sh\nn=$(cat " + count + " 2>/dev/null || echo 0)\nn=$((n + 1))\necho $n > " + count + "\n" +
+			"if [ $n -eq 1 ]; then echo 41; exit 0; fi\n"
+		if mergeOK {
+			script += "echo 42\nexit 0\n"
+		} else {
+			script += "echo 'sbatch: error: queue full' >&2\nexit 1\n"
+		}
+		if err := os.WriteFile(filepath.Join(bin, "sbatch"), []byte(script), 0o755); err != nil {
+			t.Fatal(err)
+		}
+		t.Setenv("PATH", bin+":"+os.Getenv("PATH"))
+		var seen []Submission
+		s := Submitter{Env: os.Environ(), Accepted: func(sub Submission) { seen = append(seen, sub) }}
+		sub, err := s.Submit(context.Background(), &Plan{MaxParallel: 0}, Files{Array: "array.sh", Merge: "merge.sh"}, []int{1, 2})
+		if mergeOK != (err == nil) {
+			t.Fatalf("merge accepted %v: error %v", mergeOK, err)
+		}
+		want := []Submission{{ArrayJob: "41", Tasks: []int{1, 2}}}
+		if mergeOK {
+			want = append(want, Submission{ArrayJob: "41", MergeJob: "42", Tasks: []int{1, 2}})
+		}
+		if len(seen) != len(want) {
+			t.Fatalf("merge accepted %v: Accepted called %d times (%v), want %d", mergeOK, len(seen), seen, len(want))
+		}
+		for i := range want {
+			if seen[i].ArrayJob != want[i].ArrayJob || seen[i].MergeJob != want[i].MergeJob || !slices.Equal(seen[i].Tasks, want[i].Tasks) {
+				t.Errorf("merge accepted %v: call %d saw %+v, want %+v", mergeOK, i, seen[i], want[i])
+			}
+		}
+		if sub.ArrayJob != "41" {
+			t.Errorf("merge accepted %v: submission %+v", mergeOK, sub)
+		}
 	}
 }
