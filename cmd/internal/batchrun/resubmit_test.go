@@ -137,6 +137,9 @@ func TestSlurmStopWhileWaiting(t *testing.T) {
 	if err == nil {
 		t.Fatalf("the wait ended although the jobs stayed queued:\n%s", so.String())
 	}
+	if len(notes) == 0 || notes[0] != StartingNote {
+		t.Errorf("stop notes %q, want the first %q (while the table is read)", notes, StartingNote)
+	}
 	want := "the submitted jobs keep running on the cluster (array job 101, merge job 102: squeue -j 101,102 shows them, scancel 101 102 cancels them)"
 	if len(notes) == 0 || !strings.Contains(notes[len(notes)-1], want) {
 		t.Errorf("stop notes %q, want the last with %q", notes, want)

@@ -24,6 +24,12 @@ import (
 // instead. Its error is classed for the exit status (package fault): a bad
 // table or --out, nothing ran; a failed study; an internal error.
 func Run(ctx context.Context, o *Options, w IO) error {
+	// Until the studies start (runLocal and runSlurm set their own note), a
+	// stop signal leaves no study's file: the command's default note spoke
+	// of a run's partial results.
+	if w.StopNote != nil {
+		defer w.StopNote(StartingNote)()
+	}
 	if err := preflight(o); err != nil {
 		return err
 	}
@@ -162,6 +168,10 @@ func runLocal(ctx context.Context, o *Options, w IO, studies []*study) error {
 	}
 	return nil
 }
+
+// StartingNote is what a stop signal's message says while the batch reads
+// its table and checks its studies, before any study starts.
+const StartingNote = "no study had started (the batch was reading its table and checking the studies), so no study's file was written; --out holds at most the batch's own folder " + OwnDir + ", and running the same command again starts afresh"
 
 // claimDir creates --out or checks that it is empty or a batch's folder,
 // and marks it as one.
