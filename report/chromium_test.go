@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"html"
 	"image/png"
 	"io"
@@ -237,6 +238,7 @@ func TestReportInChromium(t *testing.T) {
 			dom, logs := runChromium(t, bin, chromiumArgs(t.TempDir(), "--enable-logging=stderr", "--v=1", "--hide-scrollbars",
 				"--window-size="+strconv.Itoa(width)+",1600", "--virtual-time-budget=5000", "--screenshot="+shot, "--dump-dom", page))
 			checkPage(t, string(dom), string(logs), ext, model, want)
+			checkExplorerBands(t, string(dom), r, model, ext)
 			data, err := os.ReadFile(shot)
 			if err != nil {
 				t.Fatalf("no screenshot: %v", err)
@@ -320,6 +322,50 @@ func checkPage(t *testing.T, d, logs, ext, model string, want float64) {
 		if err != nil || !hostIn(u.Hostname(), browserOwnHosts) {
 			t.Errorf("network request not made by the browser itself: %s", m[1])
 		}
+	}
+}
+
+// checkExplorerBands checks that the explorer shades the partial ROC
+// region of each E as the ROC figure does (one rect per band, in its
+// grey) and lists the ratio at each of those E (it shaded and listed the
+// first E only).
+func checkExplorerBands(t *testing.T, d string, r *Results, model, ext string) {
+	t.Helper()
+	teach := regexp.MustCompile(`(?s)<svg id="fig-teach"[^>]*>(.*?)</svg>`).FindStringSubmatch(d)
+	if teach == nil {
+		t.Fatal("no explorer svg")
+	}
+	bands := rocBands(r.Settings.E)
+	if len(bands) < 2 {
+		t.Fatalf("the sample has %d bands; the check needs two E values or more", len(bands))
+	}
+	for _, b := range bands {
+		fill := fmt.Sprintf(`fill="rgb(%d,%d,%d)"`, b.fill.Y, b.fill.Y, b.fill.Y)
+		if strings.Count(teach[1], fill) != 1 {
+			t.Errorf("explorer: band of E = %v (%s) drawn %d times, want once", b.e, fill, strings.Count(teach[1], fill))
+		}
+	}
+	listed := 0
+	for _, s := range r.Scores {
+		if s.Model != model || s.Extent != ext {
+			continue
+		}
+		for _, pr := range s.PartialROC {
+			if !pr.Defined {
+				continue
+			}
+			row := fmt.Sprintf("<td>partial ROC ratio, E = %s</td><td>%s", fmtG(pr.E), f3(pr.Ratio))
+			if !strings.Contains(d, row) {
+				t.Errorf("explorer lists no row %q", row)
+			}
+			listed++
+		}
+	}
+	if listed < 2 {
+		t.Errorf("the sample's %s on %s has %d defined partial ROC ratios; the check needs two", model, ext, listed)
+	}
+	if !strings.Contains(d, "shaded bands: the partial ROC region of each E (") {
+		t.Errorf("explorer's sentence does not name the bands: %s", regexp.MustCompile(`<p id="teach-sentence">[^<]*`).FindString(d))
 	}
 }
 

@@ -35,6 +35,30 @@ type teachCell struct {
 	// AUCSDNone: there is no SD of AUC over the paired resamples (fewer
 	// than 2 test points or resamples; AUCSD is 0).
 	AUCSDNone bool `json:"auc_sd_none,omitempty"`
+	// More are the partial ROC ratios at the other E values the explorer
+	// shades (teachPayload.Bands), in the order of the E given; the
+	// fields above hold the first E's.
+	More []teachRatio `json:"more_partial_roc"`
+}
+
+// teachRatio is a cell's partial ROC ratio at one E other than the first.
+type teachRatio struct {
+	E          float64 `json:"e"`
+	Ratio      float64 `json:"ratio"`
+	Low        float64 `json:"low"`
+	High       float64 `json:"high"`
+	OK         bool    `json:"ok"`
+	NoInterval bool    `json:"no_interval,omitempty"`
+}
+
+// teachBand is a shaded band of the explorer's ROC panel, as the ROC
+// figure's panels shade it (rocBands): y from Lo to Hi in grey Grey
+// (0 to 255).
+type teachBand struct {
+	E    float64 `json:"e"`
+	Lo   float64 `json:"lo"`
+	Hi   float64 `json:"hi"`
+	Grey uint8   `json:"grey"`
 }
 
 type teachExtent struct {
@@ -52,7 +76,13 @@ type teachPayload struct {
 	Labels  []string      `json:"labels"`
 	Extents []teachExtent `json:"extents"`
 	E       float64       `json:"e"`
-	Default string        `json:"default_extent"`
+	// Es are the E values whose partial ROC region the explorer shades
+	// and whose ratio it lists, as given (the first rocMaxBands, as the
+	// ROC figure), Bands their bands and Unshaded the E values past them.
+	Es       []float64   `json:"es"`
+	Bands    []teachBand `json:"bands"`
+	Unshaded string      `json:"unshaded"`
+	Default  string      `json:"default_extent"`
 	// Base is the extent every difference is taken from (the base
 	// extent, or the one standing in for it).
 	Base string `json:"base_extent"`
@@ -72,7 +102,7 @@ func round4(v float64) float64 { return math.Round(v*1e4) / 1e4 }
 // rounded to 4 decimals (drawing only).
 func teachData(r *Results) ([]byte, error) {
 	s := r.Sensitivity
-	pl := teachPayload{Models: []string{}, Labels: []string{}, Extents: []teachExtent{}, Cells: []teachCell{}}
+	pl := teachPayload{Models: []string{}, Labels: []string{}, Extents: []teachExtent{}, Cells: []teachCell{}, Es: []float64{}, Bands: []teachBand{}}
 	pl.Models = append(pl.Models, s.ModelNames...)
 	for _, n := range nulls(r) {
 		pl.Models = append(pl.Models, n.Name)
@@ -82,6 +112,17 @@ func teachData(r *Results) ([]byte, error) {
 	}
 	if len(r.Settings.E) > 0 {
 		pl.E = r.Settings.E[0]
+	}
+	pl.Es = append(pl.Es, r.Settings.E[:min(len(r.Settings.E), rocMaxBands)]...)
+	for _, b := range rocBands(r.Settings.E) {
+		pl.Bands = append(pl.Bands, teachBand{E: b.e, Lo: b.lo, Hi: b.hi, Grey: b.fill.Y})
+	}
+	if len(r.Settings.E) > rocMaxBands {
+		var rest []string
+		for _, e := range r.Settings.E[rocMaxBands:] {
+			rest = append(rest, fmtG(e))
+		}
+		pl.Unshaded = joinList(rest)
 	}
 	pl.Base, pl.BaseWord, pl.Bootstrap = s.BaseExtent, referenceWord(s), bootstrapName(r.Settings)
 	for _, e := range rocExtents(r) {
@@ -102,7 +143,7 @@ func teachData(r *Results) ([]byte, error) {
 	}
 	for _, m := range pl.Models {
 		for _, e := range pl.Extents {
-			c := teachCell{Model: m, Extent: e.ID, X: []float64{}, Y: []float64{}}
+			c := teachCell{Model: m, Extent: e.ID, X: []float64{}, Y: []float64{}, More: []teachRatio{}}
 			var sc *Score
 			for i := range r.Scores {
 				if r.Scores[i].Model == m && r.Scores[i].Extent == e.ID {
@@ -122,15 +163,24 @@ func teachData(r *Results) ([]byte, error) {
 			if sc.TestPoints < 2 || r.Settings.PairedResamples < 2 {
 				c.AUCSD, c.AUCSDNone = 0, true
 			}
-			for _, pr := range sc.PartialROC {
-				if math.Abs(pr.E-pl.E) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
-					c.PartialROC, c.PartialROCOK = pr.Ratio, true
-					if BootstrapReadable(pr) {
-						c.PartialROCLow, c.PartialROCHigh = pr.CILow, pr.CIHigh
-					} else {
-						c.PartialROCNoInterval = true
+			for k, e := range pl.Es {
+				var t teachRatio
+				t.E = e
+				for _, pr := range sc.PartialROC {
+					if math.Abs(pr.E-e) <= 1e-12 && pr.Defined && !(pr.Iterations > 0 && pr.NotFormed >= pr.Iterations) {
+						t.Ratio, t.OK = pr.Ratio, true
+						if BootstrapReadable(pr) {
+							t.Low, t.High = pr.CILow, pr.CIHigh
+						} else {
+							t.NoInterval = true
+						}
 					}
 				}
+				if k > 0 {
+					c.More = append(c.More, t)
+					continue
+				}
+				c.PartialROC, c.PartialROCOK, c.PartialROCLow, c.PartialROCHigh, c.PartialROCNoInterval = t.Ratio, t.OK, t.Low, t.High, t.NoInterval
 			}
 			for _, t := range sc.Thresholds {
 				if t.Name == metrics.ThresholdMTP {

@@ -118,6 +118,16 @@
       svg.appendChild(e);
       return e;
     }
+    // bandWords ends the explorer's sentence with what the shading is.
+    function bandWords() {
+      var b = data.bands;
+      if (!b.length) { return "."; }
+      if (b.length === 1) { return "; shaded band: the partial ROC region (omission at most E = " + b[0].e + ")."; }
+      var es = b.map(function (x) { return String(x.e); });
+      return "; shaded bands: the partial ROC region of each E (" + es.slice(0, -1).join(", ") + " and " + es[es.length - 1] +
+        "; the smallest E's the darkest, at the top; each larger E's region is its own band and every band above it)" +
+        (data.unshaded ? "; E = " + data.unshaded + " not shaded (the partial ROC table gives their ratios)." : ".");
+    }
     function draw() {
       var m = selM.value, eid = selE.value;
       var c = cells[m + "\u0000" + eid];
@@ -127,9 +137,12 @@
       function X(x) { return L + x * W; }
       function Y(y) { return T + (1 - y) * H; }
       el("rect", { x: L, y: T, width: W, height: H, fill: "#fff", stroke: "#333", "stroke-width": 1 });
-      if (data.e > 0) {
-        el("rect", { x: L, y: Y(1), width: W, height: Y(1 - data.e) - Y(1), fill: "#dedede" });
-      }
+      // The partial ROC region of each E shaded as the ROC figure's
+      // panels shade it: the smallest E's band darkest, at the top.
+      data.bands.forEach(function (b) {
+        var g = "rgb(" + b.grey + "," + b.grey + "," + b.grey + ")";
+        el("rect", { x: L, y: Y(b.hi), width: W, height: Y(b.lo) - Y(b.hi), fill: g });
+      });
       [0, 0.25, 0.5, 0.75, 1].forEach(function (t) {
         el("line", { x1: X(t), y1: Y(0), x2: X(t), y2: Y(0) + 4, stroke: "#333" });
         el("text", { x: X(t), y: Y(0) + 15, "font-size": 10, "text-anchor": "middle" }, String(t));
@@ -164,15 +177,16 @@
         el("text", { x: X(0.96), y: Y(0.06), "font-size": 14, "text-anchor": "end", "font-weight": "bold" }, "AUC " + fx(c.auc, 3));
         sent.textContent = "On " + eid + (eid === data.base_extent ? ", " + data.base_word : "") + " (" + ext.params + ", " + ext.area + " km², " + c.test_points + (c.test_points === 1 ? " test point) " : " test points) ") + who(m) +
           " has AUC " + fx(c.auc, 3) + (c.partial_roc_ok ? " and partial ROC ratio " + fx(c.partial_roc, 3) : "") + ". Black: this extent; grey: the same model or null on the other extents" +
-          (data.e > 0 ? "; shaded band: the partial ROC region (omission at most E = " + data.e + ")." : ".");
+          bandWords();
         row("extent area", ext.area + " km²");
         row("test points", String(c.test_points));
         row("AUC", fx(c.auc, 3) + (c.auc_sd_none ? "" : " (SD over the full-size paired resamples " + fx(c.auc_sd, 3) + ")"));
-        if (c.partial_roc_ok) {
-          row("partial ROC ratio, E = " + data.e, fx(c.partial_roc, 3) + (c.partial_roc_no_interval ?
+        [{ e: data.e, ratio: c.partial_roc, ok: c.partial_roc_ok, low: c.partial_roc_low, high: c.partial_roc_high, no_interval: c.partial_roc_no_interval }].concat(c.more_partial_roc).forEach(function (p) {
+          if (!p.ok) { return; }
+          row("partial ROC ratio, E = " + p.e, fx(p.ratio, 3) + (p.no_interval ?
             " (full sample; too few test points for the percentiles of " + data.bootstrap + ")" :
-            " (full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": " + fx(c.partial_roc_low, 3) + " to " + fx(c.partial_roc_high, 3) + ")"));
-        }
+            " (full sample; 2.5th to 97.5th percentile of " + data.bootstrap + ": " + fx(p.low, 3) + " to " + fx(p.high, 3) + ")"));
+        });
         if (c.threshold_ok) {
           row("omission at minimum training presence", fx(c.omission, 3));
           row("predicted area at that threshold (share of the extent)", fx(c.area_fraction, 3));
