@@ -401,3 +401,31 @@ func TestStretchMax(t *testing.T) {
 		}
 	}
 }
+
+// TestIndexSlot checks that Slot is the inverse of the tree's order: the
+// site at each site's slot is that site, and the slots are a permutation.
+func TestIndexSlot(t *testing.T) {
+	lats, lons := make([]float64, 1000), make([]float64, 1000)
+	for i := range lats {
+		lats[i], lons[i] = -60+float64(i*37%1000)*0.12, -170+float64(i*91%1000)*0.34
+	}
+	ix, err := NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := make([]bool, ix.Len())
+	moved := 0
+	for i := range ix.Len() {
+		s := ix.Slot(i)
+		if s < 0 || s >= ix.Len() || seen[s] || int(ix.ids[s]) != i {
+			t.Fatalf("site %d: slot %d (seen %v, holds site %d)", i, s, s >= 0 && s < ix.Len() && seen[s], ix.ids[s])
+		}
+		seen[s] = true
+		if s != i {
+			moved++
+		}
+	}
+	if moved == 0 {
+		t.Fatal("no site moved: the check cannot tell Slot from the identity")
+	}
+}

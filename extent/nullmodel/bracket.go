@@ -1339,49 +1339,87 @@ type farPair struct {
 	d, sz, cz float64
 }
 
-// fanLimit bounds the geodesics kept by siteFans (24 bytes each): our
-// choice, 24 MiB per worker.
+// fanLimit bounds the geodesics kept by siteFans (24 bytes each, a
+// pointer of a fan's chunk list counted as one): our choice, 24 MiB per
+// worker.
 const fanLimit = 1 << 20
 
+// fanChunk is the number of sites of one chunk of a fan (our choice): a
+// fan holds only the chunks of the sites asked for, so that a reference
+// site costs its list of chunk pointers and the few chunks of its
+// super-tiles' candidates, not one entry per site of the Index (a fan
+// of every site made and filled 240 KB per reference site with 10,000
+// training points, most of the null's pass, and the cache was dropped
+// every hundred fans).
+const fanChunk = 32
+
 // siteFans holds, by reference site, the geodesics from it to the other
-// sites of one Index (one entry per site, d NaN until computed): what
-// farPrune and the projected path's prunable ask for, kept across Bracket
-// calls on that Index (the scratch that holds it is pooled across Fields:
-// another Index, or more than fanLimit entries, starts it afresh).
+// sites of one Index (made on first use, see pairAt): what farPrune and
+// the projected path's prunable ask for, kept across Bracket calls on
+// that Index (the scratch that holds it is pooled across Fields: another
+// Index, or more than fanLimit entries, starts it afresh; a fan already
+// handed out stays valid).
 type siteFans struct {
 	ix *geodesy.Index
-	m  map[int][]farPair
+	m  map[int]fanRow
+	n  *int // entries held (chunk pointers and chunks' entries)
 }
 
-// fan returns the geodesics from site a of ix to the others, made once.
-func (fs *siteFans) fan(ix *geodesy.Index, a int) []farPair {
+// fanRow is the fan of one reference site: the geodesics from it to the
+// sites of the Index, in chunks of fanChunk sites made when one of them
+// is first asked for (pairAt); at(k) reads one pairAt has made.
+// Site k's entry is at position ix.Slot(k), the kd-tree's order, so that
+// the candidates of one super-tile, sites near one another, share chunks
+// (sites in the order given are in no order of place).
+type fanRow struct {
+	chunks []*[fanChunk]farPair
+	n      *int
+	ix     *geodesy.Index
+}
+
+// at returns the geodesic to site k, which pairAt must have made.
+func (f fanRow) at(k int) farPair {
+	i := f.ix.Slot(k)
+	return f.chunks[i/fanChunk][i%fanChunk]
+}
+
+// fan returns the fan of site a of ix, made once.
+func (fs *siteFans) fan(ix *geodesy.Index, a int) fanRow {
 	if fs.ix == ix {
 		if fan, ok := fs.m[a]; ok {
 			return fan
 		}
 	}
-	if fs.ix != ix || fs.m == nil || len(fs.m)*ix.Len() > fanLimit {
-		fs.ix, fs.m = ix, map[int][]farPair{}
+	if fs.ix != ix || fs.m == nil || *fs.n > fanLimit {
+		fs.ix, fs.m, fs.n = ix, map[int]fanRow{}, new(int)
 	}
-	fan := make([]farPair, ix.Len())
-	for k := range fan {
-		fan[k].d = math.NaN()
-	}
+	fan := fanRow{chunks: make([]*[fanChunk]farPair, (ix.Len()+fanChunk-1)/fanChunk), n: fs.n, ix: ix}
+	*fs.n += len(fan.chunks)
 	fs.m[a] = fan
 	return fan
 }
 
 // pairAt returns the geodesic from the site whose fan is fan, at (alat,
 // alon), to site k of ix (geodesy.Inverse), computed once.
-func pairAt(ix *geodesy.Index, fan []farPair, alat, alon float64, k int) farPair {
-	if p := fan[k]; p.d == p.d {
+func pairAt(ix *geodesy.Index, fan fanRow, alat, alon float64, k int) farPair {
+	i := ix.Slot(k)
+	c := fan.chunks[i/fanChunk]
+	if c == nil {
+		c = new([fanChunk]farPair)
+		for e := range c {
+			c[e].d = math.NaN()
+		}
+		fan.chunks[i/fanChunk] = c
+		*fan.n += fanChunk
+	}
+	if p := c[i%fanChunk]; p.d == p.d {
 		return p
 	}
 	klat, klon := ix.Site(k)
 	d, az, _ := geodesy.Inverse(alat, alon, klat, klon)
 	p := farPair{d: d}
 	p.sz, p.cz = math.Sincos(az * math.Pi / 180)
-	fan[k] = p
+	c[i%fanChunk] = p
 	return p
 }
 
@@ -1467,10 +1505,10 @@ func (b *bracketer) farPruneFrom(clat, clon float64, first int, st *stencil, far
 	}
 	// T G with 2 sin(D/2b) <= D/b.
 	tg := st.tmax * sqrtKmax / (min(math.Sin(r1*sqrtKmax), math.Sin(r2*sqrtKmax)) * (1 - 1e-12))
-	dj := fan[b.cands[j]].d
+	dj := fan.at(b.cands[j]).d
 	b.kept = b.kept[:0]
 	for q, k := range b.cands {
-		if q != j && lo[q]-hi[j]-tg*(dj+fan[k].d) > 1e-3 {
+		if q != j && lo[q]-hi[j]-tg*(dj+fan.at(k).d) > 1e-3 {
 			continue
 		}
 		if b.kept = append(b.kept, k); len(b.kept) > maxCandidates {
@@ -1596,7 +1634,7 @@ func (b *bracketer) antipodeSites(clat, clon float64) bool {
 // the sites) and the q of the smallest upper end (the first such); ok is
 // false, and nothing else is set, when the bound does not apply (a site d
 // >= F0/2 from s0, or F0 + d beyond maxFarDist).
-func siteBrackets(ix *geodesy.Index, fans *siteFans, s0 int, f0, az2 float64, ks []int, lo, hi []float64) (los, his []float64, fan []farPair, j int, ok bool) {
+func siteBrackets(ix *geodesy.Index, fans *siteFans, s0 int, f0, az2 float64, ks []int, lo, hi []float64) (los, his []float64, fan fanRow, j int, ok bool) {
 	slat, slon := ix.Site(s0)
 	sz, cz := math.Sincos(az2 * math.Pi / 180)
 	fan = fans.fan(ix, s0)
@@ -1607,16 +1645,16 @@ func siteBrackets(ix *geodesy.Index, fans *siteFans, s0 int, f0, az2 float64, ks
 		dmax = max(dmax, pairAt(ix, fan, slat, slon, k).d)
 	}
 	if !(f0 > 2*dmax && f0+dmax <= maxFarDist) {
-		return lo, hi, nil, 0, false
+		return lo, hi, fanRow{}, 0, false
 	}
 	a, bb, hok := farHessian(farCot(f0), f0, dmax)
 	if !hok && dmax > 0 {
-		return lo, hi, nil, 0, false
+		return lo, hi, fanRow{}, 0, false
 	}
 	margin := 1e-3 + 1e-9*f0
 	n := len(lo)
 	for _, k := range ks {
-		p := fan[k]
+		p := fan.at(k)
 		l, h := f0-margin, f0+margin
 		if p.d > 0 {
 			base, half := f0+p.d*(p.cz*cz+p.sz*sz), p.d*p.d/2

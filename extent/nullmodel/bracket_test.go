@@ -1131,8 +1131,8 @@ func TestSiteFansPerIndex(t *testing.T) {
 	fanA := fs.fan(ixA, 0)
 	pairAt(ixA, fanA, a0lat, a0lon, 5)
 	fanB := fs.fan(ixB, 0)
-	if len(fanB) != ixB.Len() || !math.IsNaN(fanB[5].d) {
-		t.Fatalf("fan of another Index: %d entries, entry 5 %v (want %d, NaN)", len(fanB), fanB[5].d, ixB.Len())
+	if c := ixB.Slot(5) / fanChunk; len(fanB.chunks)*fanChunk < ixB.Len() || fanB.chunks[c] != nil {
+		t.Fatalf("fan of another Index: %d chunks (want room for %d sites), the chunk of site 5 made %v (want none yet)", len(fanB.chunks), ixB.Len(), fanB.chunks[c] != nil)
 	}
 	b0lat, b0lon := ixB.Site(0)
 	k5lat, k5lon := ixB.Site(5)
@@ -1140,8 +1140,58 @@ func TestSiteFansPerIndex(t *testing.T) {
 	if got := pairAt(ixB, fanB, b0lat, b0lon, 5).d; got != want {
 		t.Fatalf("geodesic from site 0 to 5 of the second Index: %v, want %v", got, want)
 	}
-	if again := fs.fan(ixB, 0); &again[0] != &fanB[0] {
+	if again := fs.fan(ixB, 0); &again.chunks[0] != &fanB.chunks[0] || again.at(5).d != want {
 		t.Fatal("the fan of the same Index and site was made again")
+	}
+}
+
+// TestSiteFansChunks checks the fan's chunks: a site's geodesic is made
+// once, in its own chunk, beside the NaN of the chunk's sites not asked
+// for; the entries held are counted, and past fanLimit the next new fan
+// starts a fresh cache while the fans handed out keep their geodesics.
+func TestSiteFansChunks(t *testing.T) {
+	lats, lons := clusteredSites(3*fanChunk+5, 10, 45, 12, 47, 3)
+	ix, err := geodesy.NewIndex(lats, lons)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var fs siteFans
+	alat, alon := ix.Site(0)
+	fan := fs.fan(ix, 0)
+	if got, want := len(fan.chunks), 4; got != want {
+		t.Fatalf("%d chunks for %d sites, want %d", got, ix.Len(), want)
+	}
+	// The site in tree slot 2 fanChunk + 3: chunk 2, entry 3.
+	k := -1
+	for i := range ix.Len() {
+		if ix.Slot(i) == 2*fanChunk+3 {
+			k = i
+		}
+	}
+	klat, klon := ix.Site(k)
+	want, _, _ := geodesy.Inverse(alat, alon, klat, klon)
+	if got := pairAt(ix, fan, alat, alon, k).d; got != want {
+		t.Fatalf("geodesic to site %d: %v, want %v", k, got, want)
+	}
+	for c, ch := range fan.chunks {
+		if (ch != nil) != (c == 2) {
+			t.Fatalf("chunk %d made %v; only chunk 2 should be", c, ch != nil)
+		}
+	}
+	if !math.IsNaN(fan.chunks[2][4].d) || fan.chunks[2][3].d != want || fan.at(k).d != want {
+		t.Fatalf("chunk 2: entry 4 %v (want NaN), entry 3 %v (want %v)", fan.chunks[2][4].d, fan.at(k).d, want)
+	}
+	if got := *fs.n; got != 4+fanChunk {
+		t.Fatalf("%d entries counted, want %d", got, 4+fanChunk)
+	}
+	*fs.n = fanLimit + 1
+	held := fs.n
+	fresh := fs.fan(ix, 1)
+	if fs.n == held || *fs.n != len(fresh.chunks) {
+		t.Fatalf("past the limit: counter kept (%v) or counts %d, want %d", fs.n == held, *fs.n, len(fresh.chunks))
+	}
+	if fan.at(k).d != want {
+		t.Fatal("a fan handed out lost its geodesic when the cache started afresh")
 	}
 }
 

@@ -1225,10 +1225,10 @@ func (b *projBracketer) prunable(sites []projSite, first int, alat, alon, tmax, 
 	aMin, _, _ := farHessian(farCot(r2), r2, tmax)
 	slack := 2*e1 + (-aMin+1/(lo[j]-tmax))*tmax*tmax/2 + 2*m + 1e-3
 	tg := tmax * sqrtKmax / smin
-	dj := fan[sites[j].k].d
+	dj := fan.at(sites[j].k).d
 	skip := sc.skip[:0]
 	for q := range sites {
-		skip = append(skip, q != j && lo[q]-hi[j]-tg*(dj+fan[sites[q].k].d)-slack > 0)
+		skip = append(skip, q != j && lo[q]-hi[j]-tg*(dj+fan.at(sites[q].k).d)-slack > 0)
 	}
 	sc.skip = skip
 	return skip
