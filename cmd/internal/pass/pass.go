@@ -609,6 +609,18 @@ type Stats struct {
 	// Values are the distinct values on cells of any extent while they
 	// are few (metrics.ValueSet); a Virtual source gathers none.
 	Values metrics.ValueSet
+	// Lowest are the metrics.LowestValues smallest distinct values on
+	// cells of any extent, each with the exact area (units) of its cells
+	// there (its first is Min with FloorArea).
+	Lowest metrics.MassList
+	// Runs are the values held by a run of at least metrics.RunCells
+	// equal valid cells in a row of one of the pass's blocks (the file's
+	// own tiles or strips, cut to the cells of some extent), each with the
+	// area of those runs (a lower bound of its cells' area), at most
+	// metrics.MaxRunValues of them (the smallest; Cut when there were
+	// more). Together with Lowest they are where a large area may sit at
+	// one value that no test point takes (metrics.Settings.ModelLowest).
+	Runs metrics.MassList
 }
 
 // Merge adds to s the statistics of a pass over other cells (another
@@ -619,7 +631,10 @@ func (s *Stats) Merge(o Stats) { s.merge(o) }
 func (s *Stats) merge(o Stats) {
 	values := s.Values
 	values.Merge(o.Values)
-	defer func() { s.Values = values }()
+	lowest, runs := s.Lowest, s.Runs
+	lowest.Merge(o.Lowest, metrics.LowestValues)
+	runs.Merge(o.Runs, metrics.MaxRunValues)
+	defer func() { s.Values, s.Lowest, s.Runs = values, lowest, runs }()
 	anyValid := s.AnyValid || o.AnyValid
 	s.AnyValid = anyValid
 	if o.Area == 0 {

@@ -265,7 +265,10 @@ func TestReadShardsForeignNotReadWhole(t *testing.T) {
 		{"empty.aspf", "", "is empty (0 bytes)"},
 		{"image.aspf", "II*\x00" + strings.Repeat("x", 4096), `does not start with "ASPF"`},
 		{"short.aspf", "AS", `does not start with "ASPF"`},
-		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 3"},
+		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 4"},
+		// Format 3: the pass statistics without the smallest values and
+		// the runs' values (the point masses of the area-random test).
+		{"three.aspf", "ASPF\x03\x00" + strings.Repeat("x", 4096), "format 3, this areasweep reads format 4; merge with the areasweep version that wrote the shards"},
 	} {
 		f := filepath.Join(dir, tc.name)
 		if err := os.WriteFile(f, []byte(tc.content), 0o666); err != nil {
