@@ -159,7 +159,10 @@ func (bs *bands) done(by int, bd *band) {
 type workerState struct {
 	// values remembers the values the pass's value set holds
 	// (Stats.Values).
-	values  metrics.ValueCache
+	values metrics.ValueCache
+	// noMasses: the block's values are not all the cells' own (plan.
+	// midpoints), so the pass gathers no Stats.Lowest or Stats.Runs.
+	noMasses bool
 	buf     []float64
 	areas   []float64
 	weights []int64
@@ -604,7 +607,7 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
-		locateSegments(layout, segs, bins, vals, weights, rowW, st, &ws.values, validRuns, len(ws.validRuns), b.x0)
+		locateSegments(layout, segs, bins, vals, weights, rowW, st, &ws.values, validRuns, len(ws.validRuns), b.x0, !ws.noMasses)
 		ws.addSegments(accs, segs, bins, vals, weights)
 	}
 	if validRuns != nil {
@@ -644,7 +647,7 @@ func (pv *Preview) copyRow(row, x0 int, vals []float64) {
 // value set (vc: the worker's cache of it) and, with validRuns, appends
 // the runs of valid cells to it (its runs of this row begin at from; x0:
 // the grid column of the block's first cell).
-func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, vc *metrics.ValueCache, validRuns *[]int32, from, x0 int) {
+func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, vc *metrics.ValueCache, validRuns *[]int32, from, x0 int, masses bool) {
 	// The statistics in locals: st is written back once per row.
 	mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 	for j := 0; j < len(segs); {
@@ -687,6 +690,9 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 			mx = hi
 		}
 		area += segArea
+		if !masses {
+			continue
+		}
 		// The smallest values: a test of the run's minimum against the
 		// list's largest, most runs.
 		if lw := &st.Lowest; len(lw.Masses) < metrics.LowestValues || lo <= lw.Masses[len(lw.Masses)-1].Value {

@@ -741,6 +741,12 @@ type plan struct {
 	// kept, when set, holds blocks already read (by Sample): the pass
 	// takes those instead of reading them.
 	kept *keptBlocks
+	// midpoints: a block's values are the midpoints of some cells'
+	// bounds, not their own (a Virtual with bounds: only the extremes and
+	// the cells near a bin's edge are computed), so the pass gathers no
+	// smallest values or runs (Stats.Lowest, Stats.Runs), which would
+	// depend on the blocks.
+	midpoints bool
 }
 
 // Score streams the raster once and returns one accumulator per family
@@ -878,6 +884,7 @@ func (r *passRun) work(pt *partial, done chan<- struct{}) {
 	}
 	defer src.Close()
 	ws := newWorkerState(r.p.blockW, r.p.blockH)
+	ws.noMasses = r.p.midpoints
 	// Statistics stay local until the end: workers' partials sit side by
 	// side in memory and per-cell writes would share cache lines.
 	var st Stats

@@ -305,7 +305,7 @@ func TestReadShardsLargeDamagedNotReadWhole(t *testing.T) {
 		return os.ReadFile(f)
 	}
 	largePartialBytes = 1000
-	content := "ASPF\x03\x00" + strings.Repeat("x", 4000) + strings.Repeat("\x00", 32)
+	content := currentPartialStart + strings.Repeat("x", 4000) + strings.Repeat("\x00", 32)
 	for _, tc := range []struct {
 		name      string
 		size      int
@@ -340,7 +340,7 @@ func TestReadShardsLargeDamagedNotReadWhole(t *testing.T) {
 // permission denied" (found with setpriv as nobody on a 000 file).
 func TestReadShardsCannotRead(t *testing.T) {
 	f := filepath.Join(t.TempDir(), "shard-2-of-3.aspf")
-	if err := os.WriteFile(f, []byte("ASPF\x03\x00 rest of the file"), 0o666); err != nil {
+	if err := os.WriteFile(f, []byte(currentPartialStart+" rest of the file"), 0o666); err != nil {
 		t.Fatal(err)
 	}
 	defer func(o func(string) (*os.File, error), r func(string) ([]byte, error)) {
@@ -391,3 +391,7 @@ func TestShardPathsFolderNotListed(t *testing.T) {
 		t.Errorf("empty folder: %v", err)
 	}
 }
+
+// currentPartialStart is the first 6 bytes of a partial file of this
+// areasweep's format (metrics.PartialFormatVersion, little-endian).
+var currentPartialStart = "ASPF" + string([]byte{byte(metrics.PartialFormatVersion), byte(metrics.PartialFormatVersion >> 8)})
