@@ -34,11 +34,12 @@ const MaxRandomDraws = 10000
 func RandomDraws(b int) int { return min(b, MaxRandomDraws) }
 
 // MinorFloorShare is the share of an extent's area, per test point, that
-// the model's minimum may hold and still be read as part of a continuous
-// spread when the minimum is not a value a test point takes: at most a
-// tenth of a test point is then expected there under random draws (our
-// choice). Above it the floor's area is not known apart from the values
-// just above it, and PRandom is not computed.
+// one value of a model of many values (its minimum, another of its
+// smallest values, a value of its long runs: massModel) may hold and
+// still be read as part of a continuous spread when no test point takes
+// it: at most a tenth of a test point is then expected there under
+// random draws (our choice). Above it the value is a point mass: placed
+// by the draws where its area is known, else PRandom is not computed.
 const MinorFloorShare = 0.1
 
 // areaModel is an extent's area along the curve's x axis (the share of the
