@@ -163,12 +163,12 @@ type workerState struct {
 	// noMasses: the block's values are not all the cells' own (plan.
 	// midpoints), so the pass gathers no Stats.Lowest or Stats.Runs.
 	noMasses bool
-	buf     []float64
-	areas   []float64
-	weights []int64
-	bins    []int32 // per column of the block row: layout bin, -1 when not scored
-	span    extent.SpanScratch
-	emit    func(int, []int32) // addTargets, bound once
+	buf      []float64
+	areas    []float64
+	weights  []int64
+	bins     []int32 // per column of the block row: layout bin, -1 when not scored
+	span     extent.SpanScratch
+	emit     func(int, []int32) // addTargets, bound once
 
 	// Planning a band: the targets of the row and of the row before.
 	targets, prevTargets []target
