@@ -34,11 +34,12 @@ const MaxRandomDraws = 10000
 func RandomDraws(b int) int { return min(b, MaxRandomDraws) }
 
 // MinorFloorShare is the share of an extent's area, per test point, that
-// the model's minimum may hold and still be read as part of a continuous
-// spread when the minimum is not a value a test point takes: at most a
-// tenth of a test point is then expected there under random draws (our
-// choice). Above it the floor's area is not known apart from the values
-// just above it, and PRandom is not computed.
+// one value of a model of many values (its minimum, another of its
+// smallest values, a value of its long runs: massModel) may hold and
+// still be read as part of a continuous spread when no test point takes
+// it: at most a tenth of a test point is then expected there under
+// random draws (our choice). Above it the value is a point mass: placed
+// by the draws where its area is known, else PRandom is not computed.
 const MinorFloorShare = 0.1
 
 // areaModel is an extent's area along the curve's x axis (the share of the
@@ -59,13 +60,14 @@ type areaModel struct{ lo, hi []float64 }
 //     areas unknown apart (ReasonRandomGap);
 //   - a model without one (many values: each cell nearly a value of its
 //     own) has atoms at the layout values and its other area spread
-//     continuously; but its minimum over the whole raster (s.ModelMin,
-//     area s.ModelMinArea) may be a floor of many cells: when it is this
-//     extent's minimum, not a layout value, and its area in the extent
-//     (at most s.ModelMinArea and at most the spread area of the
-//     extent's lowest histogram bin) may exceed MinorFloorShare / n of
-//     the extent, that floor is not known apart from the values just
-//     above it.
+//     continuously, but for the values where a large area may sit at one
+//     value (massModel): the raster's smallest values with their exact
+//     areas (s.ModelLowest; s.ModelMin and s.ModelMinArea when it is
+//     empty) and the values of its long runs of equal cells
+//     (s.ModelRuns). One that is no layout value and may hold more than
+//     MinorFloorShare / n of the extent's area is an atom where its area
+//     in the extent and the area below it are known exactly, and is
+//     otherwise not known apart from the values near it.
 func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, string) {
 	W := c.totalAreaF
 	var m areaModel
@@ -110,19 +112,142 @@ func newAreaModel(a *Accumulator, c *cumulative, s Settings, n int) (areaModel, 
 			m.lo, m.hi = append(m.lo, float64(ge-c.eqA[j])/W), append(m.hi, float64(ge)/W)
 		}
 	}
-	if s.ModelMinArea > 0 && a.min == s.ModelMin {
-		// The floor's area in this extent is at most the raster's at
-		// the minimum and at most the spread area (less the layout
-		// values) of the extent's lowest histogram bin, which holds it.
-		i0, _ := a.occupied()
-		spread, _, _ := a.pointMasses(i0, 1)
-		floor := min(s.ModelMinArea, spread[0])
-		if j := sort.SearchFloat64s(d, a.min); !(j < len(d) && d[j] == a.min) &&
-			float64(floor) > MinorFloorShare/float64(n)*W {
-			return m, fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(floor)/W, MinorFloorShare, n)
+	why := massModel(a, c, s, n, &m)
+	return m, why
+}
+
+// massModel adds to m (an area model of a model of many values, atoms at
+// the layout values) the values where a large area may sit at one value
+// that no test point or threshold takes, or returns why their area is not
+// known well enough. Its cut-off is MinorFloorShare / n of the extent's
+// area W: a value whose area in the extent may exceed it (its bound U) is
+// a point mass the draws must place.
+//
+//   - The raster's smallest values (s.ModelLowest: every value below the
+//     largest listed is listed) have exact areas A over the raster: in the
+//     extent a value holds at least A less the raster's area outside the
+//     extent (s.ModelArea - W) and at most U = min(A, the spread area of
+//     the extent's histogram bin that holds it); where the two meet (an
+//     extent that holds every cell of the raster, say) its area is known,
+//     and so is the area below the next value while every value below is
+//     known. A value above the cut-off with its area and the area below it
+//     known is an atom; one whose area is not known is a point mass the
+//     draws cannot place, and PRandom is not computed. The first value is
+//     the raster's minimum: the floor of a truncated model.
+//   - The values of long runs of equal cells (s.ModelRuns; plateaus) have
+//     a lower bound of their areas only (the area of their runs, R): one
+//     with R above the cut-off (its runs alone could hold a point mass)
+//     and the spread area of its histogram bin above it (U) is not known
+//     apart from the values near it. Where the run list was cut
+//     (ModelRuns.Cut), a value past its last could be such a plateau: the
+//     extent's largest bin spread above that value is its bound.
+func massModel(a *Accumulator, c *cumulative, s Settings, n int, m *areaModel) string {
+	W := c.totalAreaF
+	cut := MinorFloorShare / float64(n) * W
+	lowest := s.ModelLowest.Masses
+	if len(lowest) == 0 && s.ModelMinArea > 0 {
+		lowest = []Mass{{s.ModelMin, s.ModelMinArea}}
+	}
+	d := c.values
+	layoutAt := func(v float64) (int, bool) {
+		j := sort.SearchFloat64s(d, v)
+		return j, j < len(d) && d[j] == v
+	}
+	// spreadAt is the area of the extent's histogram bin that holds v,
+	// less the layout values' areas there.
+	spreadAt := func(v float64) int64 {
+		if v == 0 {
+			v = 0
+		}
+		spread, _, _ := a.pointMasses(int(gridBin(v, a.he)-a.hbase), 1)
+		return spread[0]
+	}
+	note := func(v float64, bound int64, first bool) string {
+		if first {
+			return fmt.Sprintf("the model's minimum, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values above it", 100*float64(bound)/W, MinorFloorShare, n)
+		}
+		return fmt.Sprintf("the model's value %.6g, which no test point takes, holds up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values near it", v, 100*float64(bound)/W, MinorFloorShare, n)
+	}
+	inRange := func(v float64) bool { return a.cells > 0 && v >= a.min && v <= a.max }
+	var below int64 // the extent's area below the value at hand, while known
+	known := true
+	added := false
+	for q, ms := range lowest {
+		v := ms.Value
+		if !inRange(v) {
+			continue // no cell of the extent holds it
+		}
+		if j, ok := layoutAt(v); ok {
+			below += c.eqA[j]
+			continue
+		}
+		U := min(ms.Area, spreadAt(v))
+		var lo int64 = -1
+		if s.ModelArea > 0 {
+			lo = max(0, ms.Area-(s.ModelArea-c.w))
+		}
+		exact := lo == U
+		if float64(U) > cut {
+			if !(exact && known) {
+				return note(v, U, q == 0)
+			}
+			ge := c.w - below
+			m.lo, m.hi = append(m.lo, float64(ge-U)/W), append(m.hi, float64(ge)/W)
+			added = true
+		}
+		if exact {
+			below += U
+		} else {
+			known = false
 		}
 	}
-	return m, ""
+	bound := math.Inf(-1)
+	if len(s.ModelLowest.Masses) > 0 {
+		bound = s.ModelLowest.Bound()
+	}
+	for _, ms := range s.ModelRuns.Masses {
+		v := ms.Value
+		if v <= bound || !inRange(v) || float64(ms.Area) <= cut {
+			continue // listed with its exact area, outside the extent or too small a plateau
+		}
+		if _, ok := layoutAt(v); ok {
+			continue
+		}
+		if U := spreadAt(v); float64(U) > cut {
+			return note(v, U, false)
+		}
+	}
+	if s.ModelRuns.Cut && a.cells > 0 {
+		last := s.ModelRuns.Bound()
+		if last < a.max {
+			i0, i1 := a.occupied()
+			if from := int(gridBin(math.Max(last, a.min), a.he) - a.hbase); from > i0 {
+				i0 = from
+			}
+			spread, _, _ := a.pointMasses(i0, i1-i0+1)
+			var U int64
+			for _, sp := range spread {
+				U = max(U, sp)
+			}
+			if float64(U) > cut {
+				return fmt.Sprintf("the model has more values on runs of %d or more equal cells than the pass lists (%d, our cap); one above %.6g may hold up to %.3g%% of the extent's area (more than %g / %d test points, our cut-off), not known apart from the values near it", RunCells, MaxRunValues, last, 100*float64(U)/W, MinorFloorShare, n)
+			}
+		}
+	}
+	if added {
+		sort.Sort(byHi{m})
+	}
+	return ""
+}
+
+// byHi sorts an area model's atoms by their upper end.
+type byHi struct{ m *areaModel }
+
+func (b byHi) Len() int           { return len(b.m.lo) }
+func (b byHi) Less(i, j int) bool { return b.m.hi[i] < b.m.hi[j] }
+func (b byHi) Swap(i, j int) {
+	b.m.lo[i], b.m.lo[j] = b.m.lo[j], b.m.lo[i]
+	b.m.hi[i], b.m.hi[j] = b.m.hi[j], b.m.hi[i]
 }
 
 // expNeg returns exp(-d) for d >= 0: below 1/64 by its Taylor series to

@@ -53,9 +53,19 @@ type Settings struct {
 	BoyceSteps int
 	// ModelMin and ModelMinArea are the model's smallest value over its
 	// whole raster and the area (units) of the cells at it; ModelMinArea 0
-	// when not known. PartialROC.PRandom reads them (newAreaModel).
+	// when not known. PartialROC.PRandom reads them (newAreaModel) when
+	// ModelLowest is empty.
 	ModelMin     float64
 	ModelMinArea int64
+	// ModelLowest are the model's smallest distinct values over its whole
+	// raster with the exact area of each (the pass's Stats.Lowest), and
+	// ModelRuns the values held by long runs of equal cells with the area
+	// of those runs (Stats.Runs); ModelArea is the area of the raster's
+	// cells in any extent (0 when not known). PartialROC.PRandom reads them
+	// (newAreaModel): they are where a large area may sit at one value.
+	ModelLowest MassList
+	ModelRuns   MassList
+	ModelArea   int64
 }
 
 // WithDefaults returns s with every zero-valued field set to its default.

@@ -44,7 +44,11 @@ import (
 // histogram on its own grid), so a version 1 file is refused with a
 // message naming the format rather than deep inside a section.
 // Version 3: layouts of EncodingVersion 3 (with the histogram floor).
-const PartialFormatVersion = 3
+// Version 4: each pass's statistics list its model's smallest values and
+// the values of long runs of equal cells, with their areas (the point
+// masses the area-random test must know), so a version 3 file is refused
+// with a message saying which version wrote it.
+const PartialFormatVersion = 4
 
 const (
 	partialMagic   = "ASPF"

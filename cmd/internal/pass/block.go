@@ -2,6 +2,7 @@ package pass
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"sync"
 	"sync/atomic"
@@ -158,13 +159,16 @@ func (bs *bands) done(by int, bd *band) {
 type workerState struct {
 	// values remembers the values the pass's value set holds
 	// (Stats.Values).
-	values  metrics.ValueCache
-	buf     []float64
-	areas   []float64
-	weights []int64
-	bins    []int32 // per column of the block row: layout bin, -1 when not scored
-	span    extent.SpanScratch
-	emit    func(int, []int32) // addTargets, bound once
+	values metrics.ValueCache
+	// noMasses: the block's values are not all the cells' own (plan.
+	// midpoints), so the pass gathers no Stats.Lowest or Stats.Runs.
+	noMasses bool
+	buf      []float64
+	areas    []float64
+	weights  []int64
+	bins     []int32 // per column of the block row: layout bin, -1 when not scored
+	span     extent.SpanScratch
+	emit     func(int, []int32) // addTargets, bound once
 
 	// Planning a band: the targets of the row and of the row before.
 	targets, prevTargets []target
@@ -603,7 +607,7 @@ func scoreBlock(g *extent.Grid, layout *metrics.Layout, b block, accs []*metrics
 		if opt.Rows != nil {
 			opt.Rows(row, b.x0, shown, weights)
 		}
-		locateSegments(layout, segs, bins, vals, weights, rowW, st, &ws.values, validRuns, len(ws.validRuns), b.x0)
+		locateSegments(layout, segs, bins, vals, weights, rowW, st, &ws.values, validRuns, len(ws.validRuns), b.x0, !ws.noMasses)
 		ws.addSegments(accs, segs, bins, vals, weights)
 	}
 	if validRuns != nil {
@@ -643,7 +647,7 @@ func (pv *Preview) copyRow(row, x0 int, vals []float64) {
 // value set (vc: the worker's cache of it) and, with validRuns, appends
 // the runs of valid cells to it (its runs of this row begin at from; x0:
 // the grid column of the block's first cell).
-func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, vc *metrics.ValueCache, validRuns *[]int32, from, x0 int) {
+func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals []float64, weights []int64, rowW int64, st *Stats, vc *metrics.ValueCache, validRuns *[]int32, from, x0 int, masses bool) {
 	// The statistics in locals: st is written back once per row.
 	mn, mx, floorArea, area := st.Min, st.Max, st.FloorArea, st.Area
 	for j := 0; j < len(segs); {
@@ -686,8 +690,99 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 			mx = hi
 		}
 		area += segArea
+		if !masses {
+			continue
+		}
+		// The smallest values: a test of the run's minimum against the
+		// list's largest, most runs.
+		if lw := &st.Lowest; len(lw.Masses) < metrics.LowestValues || lo <= lw.Masses[len(lw.Masses)-1].Value {
+			addLowest(lw, sb, sv, sw)
+		}
+		addRuns(&st.Runs, sb, sv, sw)
 	}
 	st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
+}
+
+// addLowest adds to l each valid cell (bins[i] >= 0) whose value may be
+// among the metrics.LowestValues smallest, with its weight. The list is
+// the same in any order of the cells, so they are taken from the end
+// whose value is smaller: on a row whose values fall along it, every cell
+// would otherwise be a new smallest value and be inserted.
+func addLowest(l *metrics.MassList, bins []int32, vals []float64, weights []int64) {
+	n := len(bins)
+	if n == 0 {
+		return
+	}
+	vals, weights = vals[:n], weights[:n]
+	top := math.Inf(1) // the list's largest once it is full
+	if k := len(l.Masses); k >= metrics.LowestValues {
+		top = l.Masses[k-1].Value
+	}
+	if vals[n-1] < vals[0] {
+		for i := n - 1; i >= 0; i-- {
+			if v := vals[i]; v <= top && bins[i] >= 0 {
+				top = addLow(l, v, weights[i])
+			}
+		}
+		return
+	}
+	for i, v := range vals {
+		if v <= top && bins[i] >= 0 {
+			top = addLow(l, v, weights[i])
+		}
+	}
+}
+
+// addLow adds area w at v to the smallest values l and returns the bound
+// past which a value cannot enter it (the largest, once it is full).
+func addLow(l *metrics.MassList, v float64, w int64) float64 {
+	l.Add(v, w, metrics.LowestValues)
+	if k := len(l.Masses); k >= metrics.LowestValues {
+		return l.Masses[k-1].Value
+	}
+	return math.Inf(1)
+}
+
+// addRuns adds to l each maximal run of at least metrics.RunCells equal
+// valid cells of a row's stretch of cells (bins, vals, weights), with
+// the run's area. A run of 2s or more cells (s = RunCells/2) holds two
+// cells s apart at p and p + s for some multiple p of s, so only those
+// pairs are compared: one test per s cells where no run is (most rows of
+// a model of many values).
+func addRuns(l *metrics.MassList, bins []int32, vals []float64, weights []int64) {
+	const s = metrics.RunCells / 2
+	n := len(vals)
+	for p := 0; p+s < n; p += s {
+		v := vals[p]
+		if vals[p+s] != v || bins[p] < 0 {
+			continue
+		}
+		b := p + 1
+		for b < n && vals[b] == v {
+			b++
+		}
+		if b <= p+s {
+			continue // a cell between them differs
+		}
+		a := p
+		for a > 0 && vals[a-1] == v {
+			a--
+		}
+		if b-a >= metrics.RunCells {
+			// Equal values are all valid or all not (a cell's bin
+			// depends on its value), but count only the valid.
+			var area int64
+			for i := a; i < b; i++ {
+				if bins[i] >= 0 {
+					area += weights[i]
+				}
+			}
+			l.Add(v, area, metrics.MaxRunValues)
+		}
+		// The next run begins at b or after: the first multiple of s
+		// from b, less the step.
+		p = (b+s-1)/s*s - s
+	}
 }
 
 // appendValidRuns appends to runs (this row's from runs[from:]) the runs

@@ -609,6 +609,18 @@ type Stats struct {
 	// Values are the distinct values on cells of any extent while they
 	// are few (metrics.ValueSet); a Virtual source gathers none.
 	Values metrics.ValueSet
+	// Lowest are the metrics.LowestValues smallest distinct values on
+	// cells of any extent, each with the exact area (units) of its cells
+	// there (its first is Min with FloorArea).
+	Lowest metrics.MassList
+	// Runs are the values held by a run of at least metrics.RunCells
+	// equal valid cells in a row of one of the pass's blocks (the file's
+	// own tiles or strips, cut to the cells of some extent), each with the
+	// area of those runs (a lower bound of its cells' area), at most
+	// metrics.MaxRunValues of them (the smallest; Cut when there were
+	// more). Together with Lowest they are where a large area may sit at
+	// one value that no test point takes (metrics.Settings.ModelLowest).
+	Runs metrics.MassList
 }
 
 // Merge adds to s the statistics of a pass over other cells (another
@@ -619,7 +631,10 @@ func (s *Stats) Merge(o Stats) { s.merge(o) }
 func (s *Stats) merge(o Stats) {
 	values := s.Values
 	values.Merge(o.Values)
-	defer func() { s.Values = values }()
+	lowest, runs := s.Lowest, s.Runs
+	lowest.Merge(o.Lowest, metrics.LowestValues)
+	runs.Merge(o.Runs, metrics.MaxRunValues)
+	defer func() { s.Values, s.Lowest, s.Runs = values, lowest, runs }()
 	anyValid := s.AnyValid || o.AnyValid
 	s.AnyValid = anyValid
 	if o.Area == 0 {
@@ -726,6 +741,12 @@ type plan struct {
 	// kept, when set, holds blocks already read (by Sample): the pass
 	// takes those instead of reading them.
 	kept *keptBlocks
+	// midpoints: a block's values are the midpoints of some cells'
+	// bounds, not their own (a Virtual with bounds: only the extremes and
+	// the cells near a bin's edge are computed), so the pass gathers no
+	// smallest values or runs (Stats.Lowest, Stats.Runs), which would
+	// depend on the blocks.
+	midpoints bool
 }
 
 // Score streams the raster once and returns one accumulator per family
@@ -863,6 +884,7 @@ func (r *passRun) work(pt *partial, done chan<- struct{}) {
 	}
 	defer src.Close()
 	ws := newWorkerState(r.p.blockW, r.p.blockH)
+	ws.noMasses = r.p.midpoints
 	// Statistics stay local until the end: workers' partials sit side by
 	// side in memory and per-cell writes would share cache lines.
 	var st Stats

@@ -7,6 +7,7 @@ import (
 	"math"
 	"reflect"
 	"slices"
+	"strings"
 	"testing"
 
 	"areasweep/extent"
@@ -146,6 +147,16 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 	for r := 0; r < h; r++ {
 		for c := 0; c < w; c++ {
 			v := float32(math.Round(1e4*(0.3*math.Sin(float64(c)/41)*math.Cos(float64(r)/29)+float64(r*c)/float64(w*h))) / 1e4)
+			// A plateau, and a floor with a few cells below it (the
+			// pass's runs and smallest values), holed by the cells below.
+			switch {
+			case r >= 150 && r < 200 && c >= 200 && c < 500:
+				v = 0.25
+			case (r*w+c)%5003 == 0:
+				v = -3.5
+			case r >= 300 && r < 330 && c >= 10:
+				v = -3
+			}
 			switch {
 			case (r*w+c)%89 == 0:
 				v = -9999
@@ -216,6 +227,51 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 					nValid++
 				}
 			}
+			// The smallest values with their areas, and the runs of at
+			// least metrics.RunCells equal valid cells in a block's row,
+			// cut where the block's cells leave every member or, in a
+			// row of cells of unequal areas, change members.
+			for r := first; r < end; r++ {
+				weights := rowWeights[r]
+				for c := 0; c < w; c++ {
+					if v := float64(vals[r*w+c]); wantIn[r*w+c] {
+						wantSt.Lowest.Add(v, weights[c], metrics.LowestValues)
+					}
+				}
+				for bx := 0; bx < w; bx += p.blockW {
+					bx1 := min(w, bx+p.blockW)
+					equal := g.RowCellsEqual(r, bx, bx1)
+					key := func(c int) string {
+						var b []byte
+						for k := range fam.Members {
+							if fam.Has(k, r*w+c) {
+								b = append(b, '1')
+							} else {
+								b = append(b, '0')
+							}
+						}
+						return string(b)
+					}
+					for c := bx; c < bx1; {
+						e := c + 1
+						in := key(c) != strings.Repeat("0", len(fam.Members))
+						for e < bx1 && vals[r*w+e] == vals[r*w+c] && (key(e) == key(c) || equal && in && key(e) != strings.Repeat("0", len(fam.Members))) {
+							e++
+						}
+						if v := float64(vals[r*w+c]); in && wantIn[r*w+c] && e-c >= metrics.RunCells {
+							var a int64
+							for x := c; x < e; x++ {
+								a += weights[x]
+							}
+							wantSt.Runs.Add(v, a, metrics.MaxRunValues)
+						}
+						c = e
+					}
+				}
+			}
+			if end-first > 300 && (len(wantSt.Runs.Masses) < 2 || wantSt.Lowest.Masses[1].Value != -3) {
+				t.Fatalf("family %s: the reference's runs %v and smallest values %v miss the plateau or the floor", name, wantSt.Runs.Masses, wantSt.Lowest.Masses)
+			}
 			// The value set: every distinct value (-0 as +0), ascending,
 			// or none past metrics.MaxSetValues or with fewer than two
 			// cells per value.
@@ -252,8 +308,17 @@ func scoreMatchesCellByCell(t *testing.T, crs string, gt [6]float64) {
 					t.Errorf("family %s, rows %v, %d workers: value set %v (kept %v), want %v", name, rr, workers, gotVals, few, wantVals)
 				}
 				st.Values = metrics.ValueSet{}
+				if !reflect.DeepEqual(st.Lowest, wantSt.Lowest) {
+					t.Errorf("family %s, rows %v, %d workers: smallest values %v, want %v", name, rr, workers, st.Lowest, wantSt.Lowest)
+				}
+				if !reflect.DeepEqual(st.Runs, wantSt.Runs) {
+					t.Errorf("family %s, rows %v, %d workers: runs %v, want %v", name, rr, workers, st.Runs, wantSt.Runs)
+				}
 				if !reflect.DeepEqual(st, wantSt) {
-					t.Errorf("family %s, rows %v, %d workers: statistics %+v, want %+v", name, rr, workers, st, wantSt)
+					st.Lowest, st.Runs = metrics.MassList{}, metrics.MassList{}
+					want := wantSt
+					want.Lowest, want.Runs = metrics.MassList{}, metrics.MassList{}
+					t.Errorf("family %s, rows %v, %d workers: statistics %+v, want %+v", name, rr, workers, st, want)
 				}
 				for k, a := range accs {
 					if !bytes.Equal(metrics.EncodeAccumulator(a), want[k]) {

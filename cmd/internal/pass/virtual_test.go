@@ -200,6 +200,9 @@ func virtualEqualsRaster(t *testing.T, setup func(*testing.T) (*extent.Grid, *Vi
 		t.Errorf("%d of %d cells bounded, want most", bounded, g.Cells())
 	}
 	describe := func(accs []*metrics.Accumulator, st Stats) string {
+		// The virtual null's blocks hold midpoints of bounds, so its pass
+		// lists no smallest values or runs; its copy's does.
+		st.Lowest, st.Runs = metrics.MassList{}, metrics.MassList{}
 		s := fmt.Sprint(st)
 		for k, a := range accs {
 			s += fmt.Sprint(a.Cells(), a.Area(), a.Min(), a.Max())

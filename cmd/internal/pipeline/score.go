@@ -94,10 +94,12 @@ func (s *Study) Score(p *Plan, sums *Sums) error {
 	// training points, so they are the same on every extent (as the
 	// omission lists are); AUCTrain uses the training points inside each.
 	mp := s.split(p.vals, p.valid)
-	// The model's minimum and its area over the whole raster bound a floor
-	// the area-random p must know (metrics.Settings.ModelMinArea).
+	// The model's smallest values and the values of its long runs, with
+	// their areas over the whole raster, are where a point mass may sit
+	// that the area-random p must know (metrics.Settings.ModelLowest).
 	set := metrics.Settings{E: s.o.E, Iterations: s.o.Iterations, Fraction: s.o.Fraction, FixedThresholds: s.o.Thresholds,
-		ThresholdTrain: append([]float64{}, mp.train...), ModelMin: sums.Stats.Min, ModelMinArea: sums.Stats.FloorArea}
+		ThresholdTrain: append([]float64{}, mp.train...), ModelMin: sums.Stats.Min, ModelMinArea: sums.Stats.FloorArea,
+		ModelLowest: sums.Stats.Lowest, ModelRuns: sums.Stats.Runs, ModelArea: sums.Stats.Area}
 	in := pointsIn{s: s, vals: p.vals, valid: p.valid, global: s.globalTest()}
 	// The extents are scored at once on the workers (each extent's
 	// bootstrap has its own seed, deriveSeed, so nothing depends on the

@@ -265,7 +265,10 @@ func TestReadShardsForeignNotReadWhole(t *testing.T) {
 		{"empty.aspf", "", "is empty (0 bytes)"},
 		{"image.aspf", "II*\x00" + strings.Repeat("x", 4096), `does not start with "ASPF"`},
 		{"short.aspf", "AS", `does not start with "ASPF"`},
-		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 3"},
+		{"old.aspf", "ASPF\x01\x00" + strings.Repeat("x", 4096), "format 1, this areasweep reads format 4"},
+		// Format 3: the pass statistics without the smallest values and
+		// the runs' values (the point masses of the area-random test).
+		{"three.aspf", "ASPF\x03\x00" + strings.Repeat("x", 4096), "format 3, this areasweep reads format 4; merge with the areasweep version that wrote the shards"},
 	} {
 		f := filepath.Join(dir, tc.name)
 		if err := os.WriteFile(f, []byte(tc.content), 0o666); err != nil {
@@ -302,7 +305,7 @@ func TestReadShardsLargeDamagedNotReadWhole(t *testing.T) {
 		return os.ReadFile(f)
 	}
 	largePartialBytes = 1000
-	content := "ASPF\x03\x00" + strings.Repeat("x", 4000) + strings.Repeat("\x00", 32)
+	content := currentPartialStart + strings.Repeat("x", 4000) + strings.Repeat("\x00", 32)
 	for _, tc := range []struct {
 		name      string
 		size      int
@@ -337,7 +340,7 @@ func TestReadShardsLargeDamagedNotReadWhole(t *testing.T) {
 // permission denied" (found with setpriv as nobody on a 000 file).
 func TestReadShardsCannotRead(t *testing.T) {
 	f := filepath.Join(t.TempDir(), "shard-2-of-3.aspf")
-	if err := os.WriteFile(f, []byte("ASPF\x03\x00 rest of the file"), 0o666); err != nil {
+	if err := os.WriteFile(f, []byte(currentPartialStart+" rest of the file"), 0o666); err != nil {
 		t.Fatal(err)
 	}
 	defer func(o func(string) (*os.File, error), r func(string) ([]byte, error)) {
@@ -388,3 +391,7 @@ func TestShardPathsFolderNotListed(t *testing.T) {
 		t.Errorf("empty folder: %v", err)
 	}
 }
+
+// currentPartialStart is the first 6 bytes of a partial file of this
+// areasweep's format (metrics.PartialFormatVersion, little-endian).
+var currentPartialStart = "ASPF" + string([]byte{byte(metrics.PartialFormatVersion), byte(metrics.PartialFormatVersion >> 8)})

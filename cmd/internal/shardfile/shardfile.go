@@ -349,7 +349,9 @@ func decodePreview(b []byte, size int) ([]PreviewCell, error) {
 }
 
 // encodeStats writes Min and Max (float64 bits), FloorArea, Area and
-// AnyValid (uint64 0 or 1), then the value set (metrics.ValueSet.Encode).
+// AnyValid (uint64 0 or 1), the smallest values and the values of long
+// runs (metrics.MassList.Encode; since partial format 4), then the value
+// set (metrics.ValueSet.Encode).
 func encodeStats(st pass.Stats) []byte {
 	b := binary.LittleEndian.AppendUint64(nil, math.Float64bits(st.Min))
 	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(st.Max))
@@ -360,6 +362,8 @@ func encodeStats(st pass.Stats) []byte {
 		flag = 1
 	}
 	b = binary.LittleEndian.AppendUint64(b, flag)
+	b = append(b, st.Lowest.Encode()...)
+	b = append(b, st.Runs.Encode()...)
 	return append(b, st.Values.Encode()...)
 }
 
@@ -367,12 +371,20 @@ func decodeStats(b []byte) (pass.Stats, error) {
 	if len(b) < 40 {
 		return pass.Stats{}, fmt.Errorf("%d bytes, want at least 40", len(b))
 	}
-	values, err := metrics.DecodeValueSet(b[40:])
+	lowest, rest, err := metrics.DecodeMassList(b[40:], metrics.LowestValues)
+	if err != nil {
+		return pass.Stats{}, fmt.Errorf("smallest values: %w", err)
+	}
+	runs, rest, err := metrics.DecodeMassList(rest, metrics.MaxRunValues)
+	if err != nil {
+		return pass.Stats{}, fmt.Errorf("values of long runs: %w", err)
+	}
+	values, err := metrics.DecodeValueSet(rest)
 	if err != nil {
 		return pass.Stats{}, err
 	}
 	st := pass.Stats{Min: math.Float64frombits(binary.LittleEndian.Uint64(b)), Max: math.Float64frombits(binary.LittleEndian.Uint64(b[8:])),
-		FloorArea: int64(binary.LittleEndian.Uint64(b[16:])), Area: int64(binary.LittleEndian.Uint64(b[24:])), Values: values}
+		FloorArea: int64(binary.LittleEndian.Uint64(b[16:])), Area: int64(binary.LittleEndian.Uint64(b[24:])), Values: values, Lowest: lowest, Runs: runs}
 	anyValid := binary.LittleEndian.Uint64(b[32:])
 	st.AnyValid = anyValid == 1
 	switch {
@@ -382,6 +394,20 @@ func decodeStats(b []byte) (pass.Stats, error) {
 		return st, fmt.Errorf("range [%v, %v] is impossible", st.Min, st.Max)
 	case anyValid > 1 || (st.Area > 0 && !st.AnyValid):
 		return st, fmt.Errorf("flag of a cell with data is %d with area %d: impossible", anyValid, st.Area)
+	case !massesFit(st.Lowest, st.Area) || !massesFit(st.Runs, st.Area):
+		return st, fmt.Errorf("the listed values' areas add up to more than the area %d", st.Area)
 	}
 	return st, nil
+}
+
+// massesFit tells whether the areas of l add up to at most area.
+func massesFit(l metrics.MassList, area int64) bool {
+	var sum int64
+	for _, m := range l.Masses {
+		if m.Area > area-sum {
+			return false
+		}
+		sum += m.Area
+	}
+	return true
 }

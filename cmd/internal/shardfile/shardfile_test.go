@@ -64,6 +64,12 @@ func shardOf(t *testing.T, i, n int, seed uint64, layouts []*metrics.Layout) *Sh
 				w := int64(1000 + row)
 				var st pass.Stats
 				st.Min, st.Max, st.Area, st.FloorArea, st.AnyValid = v, v, w, w, true
+				// The smallest values and (as if a run of the block held
+				// them) every third cell's value with its area.
+				st.Lowest.Add(v, w, metrics.LowestValues)
+				if cell%3 == 0 {
+					st.Runs.Add(v, w, metrics.MaxRunValues)
+				}
 				ps.Stats.Merge(st)
 				for k := range members {
 					if inMember(k, cell) {
@@ -179,16 +185,20 @@ func TestDecodeRefuses(t *testing.T) {
 		t.Fatal(err)
 	}
 	change := map[string]func([]byte) []byte{
-		"meta":           func(b []byte) []byte { return bytes.Replace(b, []byte(`"width":23`), []byte(`"width":2`), 1) },
-		"valid":          func(b []byte) []byte { return b[:len(b)-4] },
-		"preview":        func(b []byte) []byte { return append(b, 1) },
-		"pass/0/layout":  func(b []byte) []byte { b[8] ^= 1; return b },
-		"pass/1/stats":   func(b []byte) []byte { b[31] = 0x80; return b },
-		"pass/0/stats":   func(b []byte) []byte { b[32] = 0; return b }, // area but no cell with data
-		"pass/0/acc/1":   func(b []byte) []byte { b[50] ^= 1; return b },
-		"background":     func(b []byte) []byte { return b[:20] },
-		"missing run":    nil,
-		"unknown extras": nil,
+		"meta":          func(b []byte) []byte { return bytes.Replace(b, []byte(`"width":23`), []byte(`"width":2`), 1) },
+		"valid":         func(b []byte) []byte { return b[:len(b)-4] },
+		"preview":       func(b []byte) []byte { return append(b, 1) },
+		"pass/0/layout": func(b []byte) []byte { b[8] ^= 1; return b },
+		"pass/1/stats":  func(b []byte) []byte { b[31] = 0x80; return b },
+		"pass/0/stats":  func(b []byte) []byte { b[32] = 0; return b }, // area but no cell with data
+		// More smallest values than the list keeps; a run's value (the
+		// first, after the 16 smallest) out of order.
+		"pass/1/stats lowest": func(b []byte) []byte { b[40] = 0xff; return b },
+		"pass/1/stats runs":   func(b []byte) []byte { b[40+8+16*16+8] ^= 0x7f; b[40+8+16*16+15] = 0x7f; return b },
+		"pass/0/acc/1":        func(b []byte) []byte { b[50] ^= 1; return b },
+		"background":          func(b []byte) []byte { return b[:20] },
+		"missing run":         nil,
+		"unknown extras":      nil,
 	}
 	for name, fn := range change {
 		t.Run(name, func(t *testing.T) {
@@ -198,7 +208,7 @@ func TestDecodeRefuses(t *testing.T) {
 				switch {
 				case name == "missing run" && s.Name == "run":
 					continue
-				case s.Name == name:
+				case s.Name == strings.Fields(name)[0] && fn != nil:
 					d = fn(d)
 				}
 				c.Sections = append(c.Sections, metrics.PartialSection{Name: s.Name, Data: d})

@@ -1,0 +1,116 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestHiddenFloorThroughRun: a model of many values whose western quarter
+// is a floor at 0.05 with one cell at 0.01 below it (an unmasked fill
+// value the minimum does not show), and no test point on the floor. The
+// pass lists the floor among the model's smallest values with its exact
+// area, so the area-random test places it as a point mass on every extent
+// that holds the whole raster (the base region covers it: a p, no note)
+// and refuses it on a user extent holding part of it, the note naming
+// 0.05 (before, both were computed with the floor spread continuously,
+// the test too liberal there). The same study split into two shards of
+// rows and merged writes the same results.json byte for byte.
+func TestHiddenFloorThroughRun(t *testing.T) {
+	dir := t.TempDir()
+	const w, h = 120, 80
+	gt := [6]float64{10, 0.05, 0, 48, 0, -0.05}
+	rng := rand.New(rand.NewPCG(41, 42))
+	vals := make([]float64, w*h)
+	for r := 0; r < h; r++ {
+		for c := 0; c < w; c++ {
+			v := 0.1 + 0.8*math.Exp(-(math.Pow(float64(c-80)/30, 2)+math.Pow(float64(r-40)/25, 2))) + 1e-3*rng.Float64()
+			if c < 30 {
+				v = 0.05
+			}
+			vals[r*w+c] = float64(float32(v))
+		}
+	}
+	vals[0] = float64(float32(0.01))
+	model := filepath.Join(dir, "model.tif")
+	writeRaster(t, model, w, h, gt, vals, true)
+	var occ strings.Builder
+	occ.WriteString("lon,lat,role\n")
+	for i := 0; i < 40; i++ {
+		role := "test"
+		if i%2 == 0 {
+			role = "train"
+		}
+		c, r := 35+rng.IntN(w-35), rng.IntN(h)
+		fmt.Fprintf(&occ, "%.4f,%.4f,%s\n", 10+0.05*(float64(c)+0.5), 48-0.05*(float64(r)+0.5), role)
+	}
+	occPath := filepath.Join(dir, "occ.csv")
+	poly := func(name string, x0, y0, x1, y1 float64) string {
+		p := filepath.Join(dir, name+".geojson")
+		body := fmt.Sprintf(`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:OGC:1.3:CRS84"}},"features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[%g,%g],[%g,%g],[%g,%g],[%g,%g],[%g,%g]]]}}]}`, x0, y0, x1, y0, x1, y1, x0, y1, x0, y0)
+		if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	if err := os.WriteFile(occPath, []byte(occ.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	region := poly("region", 9.9, 43.9, 16.1, 48.1)
+	west := poly("west", 9.9, 43.9, 13, 48.1)
+	base := []string{"--model", "m=" + model, "--occurrences", occPath, "--region", region, "--extra", "west=" + west,
+		"--iterations", "200", "--no-distance-null", "--quiet"}
+	single := filepath.Join(dir, "single")
+	if _, se, code := runBin(t, append([]string{"run", "--out", single}, base...)...); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, se)
+	}
+	res := loadResults(t, single)
+	var whole, part int
+	for _, sc := range res.Scores {
+		if sc.Model != "m" || !sc.Scored {
+			continue
+		}
+		for _, pr := range sc.PartialROC {
+			if !pr.Defined {
+				continue
+			}
+			switch sc.Extent {
+			case "base":
+				if pr.PRandom == 0 || pr.PRandomNote != "" {
+					t.Errorf("base, E = %g: p_random %g, note %q; want a p (the base holds the whole raster, so the floor's area in it is known)", pr.E, pr.PRandom, pr.PRandomNote)
+				}
+				whole++
+			case "user_west":
+				if pr.PRandom != 0 || !strings.HasPrefix(pr.PRandomNote, "the model's value 0.05, which no test point takes, holds up to") {
+					t.Errorf("user_west, E = %g: p_random %g, note %q; want refused, naming the floor 0.05", pr.E, pr.PRandom, pr.PRandomNote)
+				}
+				part++
+			}
+		}
+	}
+	if whole == 0 || part == 0 {
+		t.Fatalf("defined ratios on the base %d, on the western extent %d: the test sees neither case", whole, part)
+	}
+	merged := filepath.Join(dir, "merged")
+	margs := []string{"merge", "--quiet", "--out", merged}
+	for i := 1; i <= 2; i++ {
+		out := filepath.Join(dir, fmt.Sprint("shard", i))
+		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
+			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
+		}
+		margs = append(margs, out)
+	}
+	if _, se, code := runBin(t, margs...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, se)
+	}
+	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
+	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
+	if len(a) == 0 || !bytes.Equal(a, b) {
+		t.Error("the merged results.json differs from the single run's")
+	}
+}
