@@ -567,8 +567,8 @@ const BoyceCoverage = "34% to 88%"
 // partial ROC ratio's paired intervals between two extents of one model:
 // the range measured by metrics.TestPairedIntervalCoverage between two
 // nested extents at E = 0.05, 10 to 500 common test points (README, "How
-// often the 95% intervals cover"; 56% to 89% at 30 points over the
-// landscapes of metrics.TestCoverageSweep). The difference of the two
+// often the 95% intervals cover"; 59% to 89% at 30 points over six
+// other landscapes in metrics.TestCoverageAlt, 500 draws each). The difference of the two
 // ratios rests on the test points at the crossing of y = 1 - E, the
 // lowest E share of them (at 10 or 30 points the lowest or the second
 // lowest), whose bootstrap distribution is lumpy and does not mirror the

@@ -251,8 +251,8 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 
 // TestPartialROCExtentsDescribed: the partial ROC ratio's percentile
 // intervals between two nested extents cover 38% to 90% of the time in
-// metrics.TestPairedIntervalCoverage (0.56 to 0.89 at 30 points over the
-// landscapes of TestCoverageSweep; no other interval from the same
+// metrics.TestPairedIntervalCoverage (0.59 to 0.89 at 30 points over six
+// other landscapes in TestCoverageAlt; no other interval from the same
 // resamples reached 93% on every landscape, coverage_alt_test.go), yet a
 // difference wholly beyond the tolerance made the ratio extent-sensitive.
 // Its differences between extents are now described, not judged: on 30
