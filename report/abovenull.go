@@ -439,7 +439,7 @@ func (g *NullGap) why() string {
 		return g.NotJudged
 	}
 	// A gap is of kind null, whose cut-off depends on its method alone.
-	return notJudgedReason(g.Reading, g.CommonPoints, g.nFormed, minCommonPoints(g.Method, PairedKindNull, ""))
+	return notJudgedReason(g.Reading, "", g.CommonPoints, g.nFormed, minCommonPoints(g.Method, PairedKindNull, ""))
 }
 
 // zero reports whether the gap and both ends of its interval are 0.

@@ -115,12 +115,12 @@ func TestFewResamplesNotJudged(t *testing.T) {
 			resampled[p.Metric] = true
 		}
 	}
-	// The headline says why the partial ROC ratio is undetermined.
-	if h := s39.Headline; !strings.Contains(h, "is undetermined for") || !strings.Contains(h, "(not judged: its differences come from 39 resamples, fewer than the 40 we judge on, our cut-off).") {
-		t.Errorf("headline at 39 resamples: %s", h)
-	}
-	if strings.Contains(s40.Headline, "not judged: its differences come from") {
-		t.Errorf("headline at 40 resamples: %s", s40.Headline)
+	// The headline describes the partial ROC ratio between extents, never
+	// judged (PartialROCExtentCoverage), the same at 39 resamples and 40.
+	for _, h := range []string{s39.Headline, s40.Headline} {
+		if !strings.Contains(h, "The partial ROC ratio at E = 0.05 is described, not judged, across extents") || strings.Contains(h, "not judged: its differences come from") {
+			t.Errorf("headline: %s", h)
+		}
 	}
 	for i, mv := range s39.ModelVerdicts {
 		if mv40, w := s40.ModelVerdicts[i], want.ModelVerdicts[i]; mv40.Verdict != w.Verdict || mv40.Sentence != w.Sentence {
@@ -144,6 +144,13 @@ func TestFewResamplesNotJudged(t *testing.T) {
 			default:
 				judged++
 			}
+		}
+		if notCalibrated(mv.Metric, PairedKindExtent) {
+			// Described whatever the resamples (a partial ROC ratio).
+			if !strings.Contains(mv.Sentence, "described, not judged") || strings.Contains(mv.Sentence, "95% interval") {
+				t.Errorf("%s of %s: %s", mv.Metric, mv.Model, mv.Sentence)
+			}
+			continue
 		}
 		if judged > 0 && (strings.Contains(mv.Sentence, "95% interval") || !strings.Contains(mv.Sentence, "Not judged, on fewer than 40 formed resamples (our cut-off; 39 formed on each)") ||
 			!(strings.Contains(mv.Sentence, "not judged ("+reason+")") || strings.Contains(mv.Sentence, "although every difference from base is 0")) ||
@@ -382,19 +389,22 @@ func TestMethodsBootstrapFewFormed(t *testing.T) {
 // judged: its differences come from 39 resamples", also a model undefined
 // on the base extent, which has no difference to judge (seen on the demo
 // with --iterations 39: coarse's ratio at E = 0.05 is undefined on base,
-// the methods text says so). When the reason is not every model's, it
-// names the models it is about. The cases follow from which model's
-// differences are formed (no other computation).
+// the methods text says so). The partial ROC ratio between extents is now
+// described, not judged, whatever the resamples
+// (PartialROCExtentCoverage): the headline describes the models with a
+// difference and names apart those without one. The cases follow from
+// which model's differences are formed (no other computation).
 func TestHeadlineFewResamplesNamesModels(t *testing.T) {
-	const tail = "its differences come from 39 resamples, fewer than the 40 we judge on, our cut-off)."
+	const described = "The partial ROC ratio at E = 0.05 is described, not judged, across extents"
 	cases := []struct {
 		name      string
 		undefined string // model whose partial ROC differences are not formed
-		want      string
+		want      []string
+		notWant   []string
 	}{
-		{"every model's differences formed", "", "undetermined for good, truncated and broad (not judged: " + tail},
-		{"broad's differences not formed", "broad", "undetermined for good, truncated and broad (not judged for good and truncated: " + tail},
-		{"good's differences not formed", "good", "undetermined for good, truncated and broad (not judged for truncated and broad: " + tail},
+		{"every model's differences formed", "", []string{described, "for good ", "for truncated ", "for broad "}, []string{"could be formed", "its differences come from 39 resamples"}},
+		{"broad's differences not formed", "broad", []string{described, "for good ", "for truncated ", "; no difference from base could be formed for broad."}, []string{"for broad ", "its differences come from 39 resamples"}},
+		{"good's differences not formed", "good", []string{described, "for truncated ", "for broad ", "; no difference from base could be formed for good."}, []string{"for good ", "its differences come from 39 resamples"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -405,7 +415,7 @@ func TestHeadlineFewResamplesNamesModels(t *testing.T) {
 				}
 			}
 			s := analyzed(t, r)
-			checkWords(t, "headline", s.Headline, []string{c.want}, nil)
+			checkWords(t, "headline", s.Headline, c.want, c.notWant)
 		})
 	}
 }
@@ -442,7 +452,9 @@ func TestResampledPointsCutOff(t *testing.T) {
 				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
 			}
 		case mv.Metric == key:
-			if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "Not judged, on fewer than 30 common test points (our cut-off):") {
+			// Described between extents (PartialROCExtentCoverage); each
+			// difference on fewer than 30 points says so.
+			if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "described, not judged") {
 				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
 			}
 			for _, d := range mv.Diffs {
@@ -479,19 +491,22 @@ func TestResampledPointsCutOff(t *testing.T) {
 	if !found {
 		t.Fatal("no partial ROC comparison with the null")
 	}
-	checkWords(t, "headline", s.Headline, []string{"is undetermined for good, truncated and broad (not judged: every difference rests on fewer than the 30 common test points we judge a difference from the resamples on, our cut-off)"}, nil)
+	// Between extents the partial ROC ratio is described, whatever the
+	// common test points (PartialROCExtentCoverage).
+	described := "The partial ROC ratio at E = 0.05 is described, not judged, across extents"
+	checkWords(t, "headline", s.Headline, []string{described}, []string{"is undetermined for good, truncated and broad"})
 	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	checkWords(t, "page", string(page), []string{"(30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample)"}, nil)
-	// One model's differences lifted to 30 points: the headline names the
-	// others.
+	// One model's differences lifted to 30 points: still described, for
+	// every model.
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Method == "paired_resamples" && p.Model == "good" && p.Kind == PairedKindExtent {
 			p.CommonPoints = MinResampledPoints
 		}
 	}
 	s = analyzed(t, r)
-	checkWords(t, "headline", s.Headline, []string{"(not judged for truncated and broad: every difference rests on fewer than the 30 common test points"}, nil)
+	checkWords(t, "headline", s.Headline, []string{described}, []string{"(not judged for truncated and broad"})
 }

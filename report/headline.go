@@ -95,6 +95,17 @@ func verdictPhrase(mv *ModelVerdict) string {
 	}
 	d := mv.Diffs[mv.Largest]
 	tol := mv.Tolerance
+	if notCalibrated(mv.Metric, PairedKindExtent) {
+		// Described, not judged (the Boyce index, a partial ROC ratio):
+		// how many differences lie beyond the tolerance, and the largest.
+		defined, beyond := beyondCount(mv, tol)
+		kind := MetricBoyce
+		if isPartialROCKey(mv.Metric) {
+			kind = MetricPartialROC
+		}
+		return fmt.Sprintf("described, not judged (%d of %d difference%s from %s beyond ±%s, the largest %s on %s; %s)", beyond, defined, Plural(defined), mv.Base, fmtG(tol),
+			signedSmall(d.Diff), d.Extent, notCalibratedCoverage(MetricInfo{Key: mv.Metric, Kind: kind}))
+	}
 	if d.Method == "exact" {
 		return fmt.Sprintf("%s (largest difference from %s %s on %s)", mv.Verdict, mv.Base, signedSmall(d.Diff, tol, -tol), d.Extent)
 	}
@@ -264,40 +275,6 @@ func verdictsByJudgement(mvs []ModelVerdict) string {
 		return strings.Join(parts, "; ")
 	}
 	return joinList(parts)
-}
-
-// fewResampleModels lists the models of mvs with a difference not judged
-// for too few formed resamples.
-func fewResampleModels(mvs []ModelVerdict) []string {
-	var few []string
-	for _, mv := range mvs {
-		for _, d := range mv.Diffs {
-			if d.Defined && d.Position == positionTooFewResamples {
-				few = append(few, mv.Model)
-				break
-			}
-		}
-	}
-	return few
-}
-
-// fewPointModels names the models of mvs whose defined differences all
-// rest on too few common test points to be judged (at least one defined).
-func fewPointModels(mvs []ModelVerdict) []string {
-	var few []string
-	for _, mv := range mvs {
-		n, all := 0, true
-		for _, d := range mv.Diffs {
-			if d.Defined {
-				n++
-				all = all && d.Position == positionTooFew
-			}
-		}
-		if n > 0 && all {
-			few = append(few, mv.Model)
-		}
-	}
-	return few
 }
 
 // testPointText says how many test points the extents hold.
@@ -510,8 +487,9 @@ func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi
 }
 
 // partialROCHeadline returns the headline's sentence on the partial ROC
-// ratio's verdicts at the first E, the models scored nowhere left out, and
-// why they are not judged where they are not; "" when there is none.
+// ratio at the first E, the models scored nowhere left out: its
+// description (partialROCDescribed), or its verdicts where no model has a
+// difference to describe; "" when there is none.
 func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
 	if len(a.r.Settings.E) == 0 || len(a.models) == 0 {
 		return ""
@@ -530,21 +508,61 @@ func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
 	if pr == "" {
 		return ""
 	}
-	// Every partial ROC difference comes from the paired resamples: with
-	// fewer than the cut-off none is judged, which is why it is
-	// undetermined. A model undefined on the base extent has no
-	// differences to judge: name the models the reason is about when it
-	// is not every one of them.
-	if n := a.r.Settings.PairedResamples; n < MinPercentileResamples {
-		if few := fewResampleModels(mvs); len(few) == len(mvs) {
-			pr += fmt.Sprintf(" (not judged: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", n, Plural(n), MinPercentileResamples)
-		} else if len(few) > 0 {
-			pr += fmt.Sprintf(" (not judged for %s: its differences come from %d resample%s, fewer than the %d we judge on, our cut-off)", joinList(few), n, Plural(n), MinPercentileResamples)
-		}
-	} else if few := fewPointModels(mvs); len(few) == len(mvs) {
-		pr += fmt.Sprintf(" (not judged: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", MinResampledPoints)
-	} else if len(few) > 0 {
-		pr += fmt.Sprintf(" (not judged for %s: every difference rests on fewer than the %d common test points we judge a difference from the resamples on, our cut-off)", joinList(few), MinResampledPoints)
+	// Between extents the partial ROC ratio is described, not judged
+	// (PartialROCExtentCoverage); with no difference to describe, the
+	// verdicts say why (undefined, or scored on the base extent only).
+	if d := partialROCDescribed(a, mvs, key); d != "" {
+		return d
 	}
 	return fmt.Sprintf(" The partial ROC ratio at E = %s is %s.", fmtG(a.r.Settings.E[0]), pr)
+}
+
+// partialROCDescribed is the headline's sentence on the partial ROC ratio
+// (key, the first E) of the models of mvs when some of them has a
+// difference from the base extent: described, not judged
+// (PartialROCExtentCoverage), by how many differences lie beyond the
+// tolerance and the largest, per model, naming apart the models undefined
+// on the base extent and those with no difference for another reason; ""
+// when none has one.
+func partialROCDescribed(a *analysis, mvs []ModelVerdict, key string) string {
+	var parts, undefined, none []string
+	for _, mv := range mvs {
+		if mv.Largest < 0 && mv.baseScored && !mv.BaseDefined {
+			undefined = append(undefined, mv.Model)
+			continue
+		}
+		if mv.Largest < 0 {
+			none = append(none, mv.Model)
+			continue
+		}
+		tol := mv.Tolerance
+		defined, beyond := beyondCount(&mv, tol)
+		big := mv.Diffs[mv.Largest]
+		largest := fmt.Sprintf("the largest %s on %s", signedSmall(big.Diff), big.Extent)
+		if big.Diff == 0 {
+			largest = "every one 0"
+		}
+		if len(parts) == 0 {
+			lie := "lie"
+			if beyond == 1 {
+				lie = "lies"
+			}
+			parts = append(parts, fmt.Sprintf("for %s %d of %d difference%s from %s %s beyond ±%s (%s)",
+				mv.Model, beyond, defined, Plural(defined), a.base, lie, fmtG(tol), largest))
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("for %s %d of %d (%s)", mv.Model, beyond, defined, largest))
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	out := fmt.Sprintf(" The partial ROC ratio at E = %s is described, not judged, across extents (%s): %s",
+		fmtG(a.r.Settings.E[0]), notCalibratedCoverage(MetricInfo{Key: key, Kind: MetricPartialROC}), joinList(parts))
+	if len(undefined) > 0 {
+		out += fmt.Sprintf("; it is undefined on %s for %s, so no difference from it is formed", a.base, joinList(undefined))
+	}
+	if len(none) > 0 {
+		out += fmt.Sprintf("; no difference from %s could be formed for %s", a.base, joinList(none))
+	}
+	return out + "."
 }

@@ -154,7 +154,8 @@ func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlT
 			}
 			if d.notJudged() {
 				// The difference describes; its interval is not read. The
-				// Boyce index's reason is the same on every row and its
+				// Boyce index's reason (and the partial ROC ratio's between
+				// extents) is the same on every row and its
 				// verdict's sentence above gives it whole.
 				why := d.why()
 				if d.Position == positionNotCalibrated {
@@ -630,7 +631,7 @@ func settingsSection(r *Results) settingsView {
 		{tc("bootstrap iterations (partial ROC bootstrap, Peterson et al. 2008)"), tc(strconv.Itoa(st.Iterations))},
 		{tc("resample fraction (partial ROC bootstrap; the published one draws 0.5)"), tc(fmtG(st.ResampleFraction))},
 		{tc("paired full-size resamples"), tc(strconv.Itoa(st.PairedResamples))},
-		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s; omission and predicted area ±%s; Boyce index ±%s (described, not judged)",
+		{tc("tolerances (our defaults unless set)"), tc(fmt.Sprintf("AUC ±%s; partial ROC ratio ±%s (between extents described, not judged); omission and predicted area ±%s; Boyce index ±%s (described, not judged)",
 			fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), fmtG(st.ToleranceBoyce)))},
 		{tc("fixed thresholds"), tc(fl(st.FixedThresholds))},
 		{tc("thin to one record per cell"), tc(yesNo(st.ThinPerCell))},

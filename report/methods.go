@@ -311,6 +311,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
+	b.WriteString(partialROCNotJudged(s, st))
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
 	if len(s.Chains) > 0 {
 		b.WriteString(" and the slope of AUC against log2 of the area along each nested chain")
@@ -755,6 +756,19 @@ func boyceNotJudged(s *Sensitivity, st Settings) string {
 	return ""
 }
 
+// partialROCNotJudged says, when a partial ROC ratio is among s's
+// metrics, that its differences between extents were described, not
+// judged, and why (PartialROCExtentCoverage); "".
+func partialROCNotJudged(s *Sensitivity, st Settings) string {
+	for _, m := range s.Metrics {
+		if m.Kind == MetricPartialROC {
+			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed ±%s.",
+				PartialROCExtentCoverage, fmtG(st.TolerancePartialROC))
+		}
+	}
+	return ""
+}
+
 // findScore returns the scored Score of model on extent, or nil.
 func findScore(r *Results, model, extent string) *Score {
 	for i := range r.Scores {
@@ -901,7 +915,7 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 	b.WriteString(". ")
 	if n != 1 {
 		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s).%s ",
-			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), boyceNotJudged(s, st))
+			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), boyceNotJudged(s, st)+partialROCNotJudged(s, st))
 		if n > 2 {
 			// One interval wholly outside makes a score extent-sensitive:
 			// with many extents that is easier to reach by chance.
@@ -918,7 +932,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	var robust, sensitive, sensitiveAll, undetermined []string
 	omissionRobust := false // an omission rate is robust by construction
 	for _, v := range s.Verdicts {
-		if v.Metric == MetricKeyBoyce {
+		if notCalibrated(v.Metric, PairedKindExtent) {
 			continue // described, not judged: said with the tolerances
 		}
 		label := v.Label

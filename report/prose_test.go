@@ -34,7 +34,7 @@ func TestBoyceBeyondCountAgrees(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			mv := &ModelVerdict{Diffs: c.diffs, Largest: 0}
-			got := boyceDescription("Boyce index of m", "base", mv, 0.1)
+			got := describedText("Boyce index of m", "base", mv, MetricInfo{Key: MetricKeyBoyce, Kind: MetricBoyce, Tolerance: 0.1})
 			checkWords(t, "Boyce", got, []string{c.want}, []string{c.notWant})
 		})
 	}

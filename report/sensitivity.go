@@ -279,8 +279,9 @@ type ExtentDifference struct {
 	// difference rests on fewer than MinPairedPoints test points, and
 	// "too_few_resamples" when its percentile interval comes from fewer
 	// than MinPercentileResamples formed resamples, "not_calibrated" for
-	// every Boyce index difference (BoyceCoverage) (all three not judged;
-	// an exact difference always is).
+	// every Boyce index difference (BoyceCoverage) and every partial ROC
+	// ratio difference between extents (PartialROCExtentCoverage) (all
+	// three not judged; an exact difference always is).
 	Position string `json:"position"`
 	// NotJudged says why a difference is not judged (Paired.NotJudgedReason);
 	// absent when it is judged.
@@ -291,6 +292,9 @@ type ExtentDifference struct {
 	// nFormed is the number of resamples that formed a paired_resamples
 	// difference (Paired.Formed), for the sentences.
 	nFormed int
+	// metric is the MetricInfo key of the difference, for its reason not
+	// to be judged (notCalibratedWhy).
+	metric string
 }
 
 // ModelVerdict is the equivalence judgement of one metric for one model

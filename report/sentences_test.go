@@ -364,13 +364,13 @@ func TestHeadlineRankings(t *testing.T) {
 		}
 	}
 	// The sample's three models: every pair, in the headline (its partial
-	// ROC differences, on 20 to 22 common test points, are not judged).
+	// ROC differences between extents are described, not judged).
 	r := analyzedSample(t)
 	for _, w := range []string{
 		"By AUC, good and truncated differ beyond noise on none of 6 extents",
 		"good is better than broad beyond noise on 5 of 8 extents",
 		"truncated is better than broad beyond noise on 4 of 6 extents",
-		"The partial ROC ratio at E = 0.05 is undetermined for good, truncated and broad (not judged: every difference rests on fewer than the 30 common test points we judge a difference from the resamples on, our cut-off).",
+		"The partial ROC ratio at E = 0.05 is described, not judged, across extents (its paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check): for good 7 of 7 differences from base lie beyond ±0.05 (the largest +0.462 on whole), for truncated 5 of 5 (the largest +0.339 on region_b100) and for broad 5 of 7 (the largest +0.543 on whole).",
 	} {
 		if !strings.Contains(r.Sensitivity.Headline, w) {
 			t.Errorf("headline lacks %q: %s", w, r.Sensitivity.Headline)
@@ -427,11 +427,12 @@ func TestMethodsTextSituations(t *testing.T) {
 				// the predicted area for some (TestReplySensitiveForEvery).
 				"AUC and AUC (cells unweighted) moved with the extent by more than the tolerance for every model.",
 				"Predicted area at minimum training presence moved with the extent by more than the tolerance for at least one model.",
-				// On 20 to 22 common test points no partial ROC difference
-				// is judged (the omission rates between extents are 0 in
-				// every resample and keep the cut-off of 10).
-				"For the partial ROC ratio at E = 0.05 and the partial ROC ratio at E = 0.1 the test records cannot tell"},
-			notWant: []string{"on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,", "the base extent, base,"}},
+				// The partial ROC ratio's differences between extents are
+				// described, not judged (PartialROCExtentCoverage): said
+				// with the tolerances, not among the undetermined.
+				"The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95% coverage between nested extents (" + PartialROCExtentCoverage + " in our simulation check;",
+				"and we say only how many exceed ±0.05."},
+			notWant: []string{"For the partial ROC ratio at E = 0.05 and the partial ROC ratio at E = 0.1 the test records cannot tell", "on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,", "the base extent, base,"}},
 		{name: "no extent holds every test point",
 			build: func(r *Results) {
 				for i := range r.Extents {

@@ -42,7 +42,8 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 // not judged. The
 // same words are the readings ReadingTooFew and ReadingTooFewResamples.
 // positionNotCalibrated is that of every Boyce index difference from the
-// paired resamples: reported, not judged (BoyceCoverage).
+// paired resamples (BoyceCoverage) and every partial ROC ratio difference
+// between two extents (PartialROCExtentCoverage): reported, not judged.
 const (
 	positionTooFew          = "too_few"
 	positionTooFewResamples = "too_few_resamples"
@@ -64,7 +65,7 @@ func (d ExtentDifference) why() string {
 	if d.NotJudged != "" || !d.notJudged() {
 		return d.NotJudged
 	}
-	return notJudgedReason(d.Position, d.CommonPoints, d.nFormed, d.cut())
+	return notJudgedReason(d.Position, d.metric, d.CommonPoints, d.nFormed, d.cut())
 }
 
 // cut is the fewest common test points d is judged on: minPoints, or for
@@ -90,7 +91,7 @@ func position(lo, hi, tol float64) string {
 // difference fills one ExtentDifference from a paired record (or exactly,
 // for the predicted area, which no test point moves).
 func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, otherExt string) ExtentDifference {
-	d := ExtentDifference{Extent: ext, minPoints: m.minCommonPoints(kind)}
+	d := ExtentDifference{Extent: ext, minPoints: m.minCommonPoints(kind), metric: m.Key}
 	sc := a.score(model, ext)
 	if sc != nil {
 		d.TestPoints = sc.TestPoints
@@ -238,8 +239,11 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		mv.Sentence = fmt.Sprintf("%s: undetermined, %s.", name, why)
 		return
 	}
-	if m.Kind == MetricBoyce {
-		mv.Sentence = boyceDescription(name, a.base, mv, m.Tolerance)
+	if m.Kind == MetricBoyce || m.Kind == MetricPartialROC {
+		// Described, not judged (notCalibrated): the Boyce index's
+		// differences of any kind, the partial ROC ratio's between
+		// extents, which these are.
+		mv.Sentence = describedText(name, a.base, mv, m)
 		return
 	}
 	if outside > 0 && mv.Diffs[mv.Largest].notJudged() {
@@ -340,21 +344,15 @@ func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
 // between extents is 0 whatever the data: its "robust" is not evidence.
 const omissionByConstruction = "the threshold comes from the training points, so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
 
-// boyceDescription describes, without judging, the Boyce index of a
-// model (name: "Boyce index of M") across extents by its differences from
-// base in mv: the largest, and on how many extents a difference lies
-// beyond tol (a description: the intervals are not read, BoyceCoverage).
-func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
+// describedText describes, without judging, the Boyce index or the
+// partial ROC ratio m of a model (name: "Boyce index of M") across
+// extents by its differences from base in mv: the largest, and on how
+// many extents a difference lies beyond m's tolerance (a description: the
+// intervals are not read, notCalibratedCoverage).
+func describedText(name, base string, mv *ModelVerdict, m MetricInfo) string {
+	tol, why := m.Tolerance, notCalibratedCoverage(m)
 	big := mv.Diffs[mv.Largest]
-	defined, beyond := 0, 0
-	for _, d := range mv.Diffs {
-		if d.Defined {
-			defined++
-			if math.Abs(d.Diff) > tol {
-				beyond++
-			}
-		}
-	}
+	defined, beyond := beyondCount(mv, tol)
 	largest := fmt.Sprintf("the largest is %s on %s", signedSmall(big.Diff), big.Extent)
 	if big.Diff == 0 {
 		largest = "every one is 0"
@@ -364,16 +362,43 @@ func boyceDescription(name, base string, mv *ModelVerdict, tol float64) string {
 		if beyond == 1 {
 			side = "beyond"
 		}
-		return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): its one difference from %s, %s on %s, lies %s ±%s.",
-			name, BoyceCoverage, base, signedSmall(big.Diff), big.Extent, side, fmtG(tol))
+		return fmt.Sprintf("%s is described, not judged (%s): its one difference from %s, %s on %s, lies %s ±%s.",
+			name, why, base, signedSmall(big.Diff), big.Extent, side, fmtG(tol))
 	}
 	// "1 of 10 lies", "3 of 10 lie": the verb follows the count beyond.
 	lie := "lie"
 	if beyond == 1 {
 		lie = "lies"
 	}
-	return fmt.Sprintf("%s is described, not judged (its paired intervals fall short of their 95%% coverage: %s in our simulation check): of its differences from %s, %d of %d %s beyond ±%s and %s.",
-		name, BoyceCoverage, base, beyond, defined, lie, fmtG(tol), largest)
+	return fmt.Sprintf("%s is described, not judged (%s): of its differences from %s, %d of %d %s beyond ±%s and %s.",
+		name, why, base, beyond, defined, lie, fmtG(tol), largest)
+}
+
+// beyondCount returns how many of mv's differences are defined and how
+// many of those lie beyond the tolerance tol, |Diff| > tol (a
+// description: the intervals are not read).
+func beyondCount(mv *ModelVerdict, tol float64) (defined, beyond int) {
+	for _, d := range mv.Diffs {
+		if d.Defined {
+			defined++
+			if math.Abs(d.Diff) > tol {
+				beyond++
+			}
+		}
+	}
+	return defined, beyond
+}
+
+// notCalibratedCoverage says why the differences of m between extents are
+// described, not judged: "its paired intervals fall short of their 95%
+// coverage: 34% to 88% in our simulation check" (BoyceCoverage), or for
+// the partial ROC ratio, "... between extents ..."
+// (PartialROCExtentCoverage).
+func notCalibratedCoverage(m MetricInfo) string {
+	if m.Kind == MetricPartialROC {
+		return fmt.Sprintf("its paired intervals between extents fall short of their 95%% coverage: %s in our simulation check", PartialROCExtentCoverage)
+	}
+	return fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
 }
 
 // toleranceText names metric m's tolerance: "our tolerance of ±0.02" when
@@ -625,8 +650,8 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 		from = "the reference extent " + mvs[0].Base
 	}
 	v.Sentence = fmt.Sprintf("%s: %s.", withinBracket(upperFirst(m.Label), fmt.Sprintf("tolerance ±%s, paired differences from %s", fmtG(m.Tolerance), from)), strings.Join(parts, "; "))
-	if m.Kind == MetricBoyce {
-		v.Sentence = boyceVerdictSentence(m, mvs, from)
+	if m.Kind == MetricBoyce || m.Kind == MetricPartialROC {
+		v.Sentence = describedVerdictSentence(m, mvs, from)
 	}
 	if len(mvs) == 1 {
 		v.Sentence = mvs[0].Sentence
@@ -634,12 +659,13 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	return v
 }
 
-// boyceVerdictSentence sums up the Boyce index over the models of mvs:
+// describedVerdictSentence sums up the Boyce index or a partial ROC
+// ratio (m) over the models of mvs:
 // described, not judged, for those with a difference from the base
 // extent (from names it), and named apart those with none (undefined or
 // not scored on the base extent, or alone on it), for which "described
 // for every model" would claim a description that is not there.
-func boyceVerdictSentence(m MetricInfo, mvs []ModelVerdict, from string) string {
+func describedVerdictSentence(m MetricInfo, mvs []ModelVerdict, from string) string {
 	var described, none []string
 	for _, mv := range mvs {
 		if mv.Largest >= 0 {
@@ -648,7 +674,7 @@ func boyceVerdictSentence(m MetricInfo, mvs []ModelVerdict, from string) string 
 			none = append(none, mv.Model)
 		}
 	}
-	why := fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
+	why := notCalibratedCoverage(m)
 	switch {
 	case len(none) == 0:
 		return fmt.Sprintf("%s: described, not judged, for every model (%s).", upperFirst(m.Label), why)

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"slices"
 	"strings"
@@ -246,6 +247,83 @@ func TestBoyceDescribedNotJudged(t *testing.T) {
 	if short == 0 {
 		t.Error("no Boyce row of the differences table says its intervals are not calibrated")
 	}
+}
+
+// TestPartialROCExtentsDescribed: the partial ROC ratio's percentile
+// intervals between two nested extents cover 38% to 90% of the time in
+// metrics.TestPairedIntervalCoverage (0.59 to 0.89 at 30 points over six
+// other landscapes in TestCoverageAlt; no other interval from the same
+// resamples reached 93% on every landscape, coverage_alt_test.go), yet a
+// difference wholly beyond the tolerance made the ratio extent-sensitive.
+// Its differences between extents are now described, not judged: on 30
+// or more common test points each has position not_calibrated with the
+// reason, the verdict's sentence counts the differences beyond the
+// tolerance and names the largest, the headline and the reply describe,
+// and the comparisons of two models on one extent are still judged.
+func TestPartialROCExtentsDescribed(t *testing.T) {
+	r := liftResampled(loadSample(t))
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	if n := setPaired(r, key, PairedKindExtent, "good", "whole", func(p *Paired) {
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, 0.3, 0.2, 0.4
+	}); n != 1 {
+		t.Fatalf("%d records of %s good on whole", n, key)
+	}
+	s := analyzed(t, r)
+	mv := s.findModelVerdict(key, "good")
+	if mv == nil || mv.Verdict != JudgementUndetermined {
+		t.Fatalf("verdict: %+v", mv)
+	}
+	// The description's numbers, from the differences.
+	defined, beyond := 0, 0
+	for _, d := range mv.Diffs {
+		if d.Defined {
+			defined++
+			if math.Abs(d.Diff) > mv.Tolerance {
+				beyond++
+			}
+		}
+	}
+	big := mv.Diffs[mv.Largest]
+	if beyond < 2 || defined < 2 {
+		t.Fatalf("%d of %d differences beyond the tolerance: the test wants several", beyond, defined)
+	}
+	count := fmt.Sprintf("%d of %d lie beyond ±0.05", beyond, defined)
+	largest := fmt.Sprintf("%s on %s", signedSmall(big.Diff), big.Extent)
+	checkWords(t, "sentence", mv.Sentence, []string{"Partial ROC ratio, E = 0.05 of good is described, not judged (its paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check)",
+		count, "the largest is " + largest}, []string{"extent-sensitive", "95% interval"})
+	judgedModels := 0
+	for _, p := range r.Paired {
+		if p.Metric != key || !p.Defined {
+			continue
+		}
+		switch {
+		case p.Kind == PairedKindExtent && p.Judged():
+			t.Errorf("paired record %s %s %s judged", p.Kind, p.Model, p.Extent)
+		case p.Kind == PairedKindExtent && p.CommonPoints >= MinResampledPoints && p.Formed() >= MinPercentileResamples &&
+			p.NotJudgedReason() != "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: "+PartialROCExtentCoverage+" in our simulation check":
+			t.Errorf("paired record %s %s: reason %q", p.Model, p.Extent, p.NotJudgedReason())
+		case p.Kind == PairedKindModel && p.Judged():
+			judgedModels++
+		}
+	}
+	if judgedModels == 0 {
+		t.Error("no comparison of two models by the partial ROC ratio is judged")
+	}
+	for _, d := range mv.Diffs {
+		if d.Extent == "whole" && (d.Position != positionNotCalibrated || !strings.Contains(d.NotJudged, "between extents fall short")) {
+			t.Errorf("%s: position %q, reason %q", d.Extent, d.Position, d.NotJudged)
+		}
+	}
+	for _, v := range s.Verdicts {
+		if v.Metric == key && (v.Verdict != JudgementUndetermined || !strings.Contains(v.Sentence, "described, not judged")) {
+			t.Errorf("metric verdict: %s %s", v.Verdict, v.Sentence)
+		}
+	}
+	checkWords(t, "headline", s.Headline, []string{"The partial ROC ratio at E = 0.05 is described, not judged, across extents", fmt.Sprintf("for good %d of %d differences from base lie beyond ±0.05 (the largest %s)", beyond, defined, largest)},
+		[]string{"partial ROC ratio at E = 0.05 is extent-sensitive", "partial ROC ratio at E = 0.05 is undetermined"})
+	text := methodsText(r)
+	checkWords(t, "methods", text, []string{"The partial ROC ratio's differences between extents were described, not judged", fmt.Sprintf("its partial ROC ratio at E = 0.05 was described, not judged (%d of %d differences from base beyond ±0.05, the largest %s;", beyond, defined, largest)},
+		[]string{"partial ROC ratio at E = 0.05 moved with the extent", "For the partial ROC ratio at E = 0.05 the test records cannot tell"})
 }
 
 // TestNoExtentScoredReferenceWords: where no model could be scored on any

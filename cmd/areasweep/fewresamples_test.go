@@ -46,6 +46,9 @@ func TestDemoFewResamplesNotJudged(t *testing.T) {
 			case p.Defined && p.Method == "paired_resamples" && p.Metric == report.MetricKeyBoyce:
 				// Never judged (report.BoyceCoverage).
 				want = "the Boyce index's paired intervals fall short of their 95% coverage: " + report.BoyceCoverage + " in our simulation check"
+			case p.Defined && p.Method == "paired_resamples" && p.Kind == report.PairedKindExtent && strings.HasPrefix(p.Metric, "partial_roc_e"):
+				// Never judged between extents (report.PartialROCExtentCoverage).
+				want = "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + report.PartialROCExtentCoverage + " in our simulation check"
 			}
 			if p.Method == "paired_resamples" {
 				resampled[p.Metric] = true

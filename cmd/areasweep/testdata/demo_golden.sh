@@ -234,6 +234,14 @@
 #     from a stream of its own, so p_random at one E no longer depends on
 #     the other E of the run: one p_random of the demo moved, 0.002 to
 #     0.001996; nothing else changed).
+#   - rewritten on branch h18 of 2026-12-05 (the partial ROC ratio's
+#     differences between extents are described, not judged: their
+#     percentile intervals under-cover in the coverage check, 38% to 90%
+#     between nested extents, and no other bootstrap interval measured
+#     did better; each such paired record gains a not_judged_reason,
+#     their positions become not_calibrated, and the ratio's verdicts,
+#     headline and sentences describe; no number changed, scores.csv
+#     unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

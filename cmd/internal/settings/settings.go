@@ -224,7 +224,7 @@ var Table = []Setting{
 		Usage: "AUC difference `D` from the base extent you treat as negligible (our default)",
 		Field: func(v *Values) any { return &v.ToleranceAUC }},
 	{Name: "tolerance-partial-roc", Kind: Float, Arg: "D", Study: true, Scoring: true,
-		Usage: "partial ROC ratio difference `D` you treat as negligible (our default)",
+		Usage: "partial ROC ratio difference `D` the report's description counts as large (its differences between extents are described, not judged; our default)",
 		Field: func(v *Values) any { return &v.TolerancePartialROC }},
 	{Name: "tolerance-omission", Kind: Float, Arg: "D", Study: true, Scoring: true,
 		Usage: "omission-rate and predicted-area difference `D` you treat as negligible (our default)",
