@@ -114,3 +114,92 @@ func TestHiddenFloorThroughRun(t *testing.T) {
 		t.Error("the merged results.json differs from the single run's")
 	}
 }
+
+// TestPlateauPastRisingRowsThroughRun: a model whose first row holds its
+// smallest values, rising along it and from row to row, with a plateau at
+// 0.5 over a quarter of the raster that no test point takes. The pass
+// meets the 16 smallest values first and skips every later cell by the
+// full list's bound; the list must still be cut, so that the plateau (a
+// value of long runs above it) is refused on every extent, naming 0.5, in
+// one run as in two shards of rows merged (the list was left uncut in one
+// run, the plateau was taken as listed, p_random computed with its area
+// spread continuously; the merge cut it and refused: results differed).
+func TestPlateauPastRisingRowsThroughRun(t *testing.T) {
+	dir := t.TempDir()
+	const w, h = 120, 80
+	gt := [6]float64{10, 0.05, 0, 48, 0, -0.05}
+	vals := make([]float64, w*h)
+	onPlateau := func(r, c int) bool { return r >= 20 && r < 60 && c >= 40 && c < 100 }
+	for r := 0; r < h; r++ {
+		for c := 0; c < w; c++ {
+			v := 0.1 + 0.01*float64(r) + 1e-4*float64(c)
+			if onPlateau(r, c) {
+				v = 0.5
+			}
+			vals[r*w+c] = float64(float32(v))
+		}
+	}
+	model := filepath.Join(dir, "model.tif")
+	writeRaster(t, model, w, h, gt, vals, true)
+	rng := rand.New(rand.NewPCG(5, 6))
+	var occ strings.Builder
+	occ.WriteString("lon,lat,role\n")
+	for i := 0; i < 60; {
+		c, r := rng.IntN(w), rng.IntN(h)
+		if onPlateau(r, c) {
+			continue
+		}
+		role := "test"
+		if i%2 == 0 {
+			role = "train"
+		}
+		fmt.Fprintf(&occ, "%.4f,%.4f,%s\n", 10+0.05*(float64(c)+0.5), 48-0.05*(float64(r)+0.5), role)
+		i++
+	}
+	occPath := filepath.Join(dir, "occ.csv")
+	if err := os.WriteFile(occPath, []byte(occ.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	region := filepath.Join(dir, "region.geojson")
+	if err := os.WriteFile(region, []byte(`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[9.9,43.9],[16.1,43.9],[16.1,48.1],[9.9,48.1],[9.9,43.9]]]}}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	base := []string{"--model", "m=" + model, "--occurrences", occPath, "--region", region, "--region-buffers=-20",
+		"--e", "0.05,0.5", "--iterations", "100", "--no-distance-null", "--quiet", "--workers", "1"}
+	single := filepath.Join(dir, "single")
+	if _, se, code := runBin(t, append([]string{"run", "--out", single}, base...)...); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, se)
+	}
+	defined := 0
+	for _, sc := range loadResults(t, single).Scores {
+		for _, pr := range sc.PartialROC {
+			if !pr.Defined {
+				continue
+			}
+			defined++
+			if pr.PRandom != 0 || !strings.HasPrefix(pr.PRandomNote, "the model's value 0.5, which no test point takes, holds up to") {
+				t.Errorf("%s, E = %g: p_random %g, note %q; want refused, naming the plateau 0.5", sc.Extent, pr.E, pr.PRandom, pr.PRandomNote)
+			}
+		}
+	}
+	if defined == 0 {
+		t.Fatal("no defined ratio: the test sees nothing")
+	}
+	merged := filepath.Join(dir, "merged")
+	margs := []string{"merge", "--quiet", "--out", merged}
+	for i := 1; i <= 2; i++ {
+		out := filepath.Join(dir, fmt.Sprint("shard", i))
+		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
+			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
+		}
+		margs = append(margs, out)
+	}
+	if _, se, code := runBin(t, margs...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, se)
+	}
+	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
+	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
+	if len(a) == 0 || !bytes.Equal(a, b) {
+		t.Error("the merged results.json differs from the single run's")
+	}
+}

@@ -693,26 +693,35 @@ func locateSegments(layout *metrics.Layout, segs []segment, bins []int32, vals [
 		if !masses {
 			continue
 		}
-		// The smallest values: a test of the run's minimum against the
-		// list's largest, most runs.
-		if lw := &st.Lowest; len(lw.Masses) < metrics.LowestValues || lo <= lw.Masses[len(lw.Masses)-1].Value {
-			addLowest(lw, sb, sv, sw)
-		}
+		addLowest(&st.Lowest, sb, sv, sw, lo, hi)
 		addRuns(&st.Runs, sb, sv, sw)
 	}
 	st.Min, st.Max, st.FloorArea, st.Area = mn, mx, floorArea, area
 }
 
 // addLowest adds to l each valid cell (bins[i] >= 0) whose value may be
-// among the metrics.LowestValues smallest, with its weight. The list is
-// the same in any order of the cells, so they are taken from the end
-// whose value is smaller: on a row whose values fall along it, every cell
-// would otherwise be a new smallest value and be inserted.
-func addLowest(l *metrics.MassList, bins []int32, vals []float64, weights []int64) {
+// among the metrics.LowestValues smallest, with its weight; lo and hi are
+// the least and largest values of the valid cells (Layout.LocateRow's).
+// The list is the same in any order of the cells, so they are taken from
+// the end whose value is smaller: on a row whose values fall along it,
+// every cell would otherwise be a new smallest value and be inserted.
+// Cells above a full list's largest are not added (all of them when lo
+// is): the list is cut where hi is above its largest at the end, as
+// adding them would have cut it (a list of more values than it keeps is
+// cut however the cells came, metrics.MassList.Bound).
+func addLowest(l *metrics.MassList, bins []int32, vals []float64, weights []int64, lo, hi float64) {
 	n := len(bins)
-	if n == 0 {
-		return
+	if k := len(l.Masses); n > 0 && (k < metrics.LowestValues || lo <= l.Masses[k-1].Value) {
+		walkLowest(l, bins, vals, weights)
 	}
+	if k := len(l.Masses); k >= metrics.LowestValues && hi > l.Masses[k-1].Value {
+		l.Cut = true
+	}
+}
+
+// walkLowest is addLowest's walk over the cells.
+func walkLowest(l *metrics.MassList, bins []int32, vals []float64, weights []int64) {
+	n := len(bins)
 	vals, weights = vals[:n], weights[:n]
 	top := math.Inf(1) // the list's largest once it is full
 	if k := len(l.Masses); k >= metrics.LowestValues {

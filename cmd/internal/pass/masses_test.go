@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"areasweep/extent"
 	"areasweep/metrics"
 )
 
@@ -71,14 +72,14 @@ func BenchmarkMassCandidates(b *testing.B) {
 		name string
 		drop float64 // each row's values lie this much below the row above's
 	}{{"continuous", 0}, {"descending", 1}} {
-		rows, lows := make([][]float64, h), make([]float64, h)
+		rows, lows, highs := make([][]float64, h), make([]float64, h), make([]float64, h)
 		for r := range rows {
 			rows[r] = make([]float64, w)
-			lows[r] = math.Inf(1)
+			lows[r], highs[r] = math.Inf(1), math.Inf(-1)
 			for x := range rows[r] {
 				v := math.Exp(-float64(x)/w) + 1e-3*rng.Float64() - c.drop*float64(r)
 				rows[r][x] = v
-				lows[r] = math.Min(lows[r], v)
+				lows[r], highs[r] = math.Min(lows[r], v), math.Max(highs[r], v)
 			}
 		}
 		bins, weights := make([]int32, w), make([]int64, w)
@@ -92,12 +93,56 @@ func BenchmarkMassCandidates(b *testing.B) {
 				if r == 0 {
 					lw = metrics.MassList{}
 				}
-				if len(lw.Masses) < metrics.LowestValues || lows[r] <= lw.Masses[len(lw.Masses)-1].Value {
-					addLowest(&lw, bins, rows[r], weights)
-				}
+				addLowest(&lw, bins, rows[r], weights, lows[r], highs[r])
 				addRuns(&rn, bins, rows[r], weights)
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*w), "ns/cell")
 		})
+	}
+}
+
+// TestLowestCutWhenSmallestComeFirst: the list of smallest values is cut
+// (Cut, so that metrics.MassList.Bound is its largest, not +Inf) whenever
+// the cells hold more than metrics.LowestValues distinct values, also when
+// the pass meets the smallest first (a model rising from its first row),
+// so that the cells above the full list's largest are skipped by its
+// bound; and it is not cut with exactly that many. With the list left
+// uncut, the area-random test took every value as listed with its exact
+// area and skipped the runs' values, missing a plateau, and a run split
+// into shards of rows (whose merge cut the list) differed from one run.
+func TestLowestCutWhenSmallestComeFirst(t *testing.T) {
+	const w, h = 50, 40
+	g, err := extent.NewGrid(w, h, [6]float64{0, 0.1, 0, 50, 0, -0.1}, "EPSG:4326")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	layout, err := metrics.NewLayout([]float64{0.5}, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name     string
+		distinct int // distinct values: value of cell i is i mod distinct, rising
+		cut      bool
+	}{{"rising", w * h, true}, {"17 values", metrics.LowestValues + 1, true}, {"16 values", metrics.LowestValues, false}} {
+		vals := make([]float32, w*h)
+		for i := range vals {
+			vals[i] = float32(1 + i%c.distinct)
+		}
+		raster := &Raster{scale: 1}
+		p := plan{width: w, height: h, blockW: 16, blockH: 4, decode: raster.decode,
+			open: func() (Source, error) { return memSource{w: w, vals: vals}, nil }}
+		for _, rr := range []*RowRange{nil, {First: 0, End: 5}} {
+			for _, workers := range []int{1, 2} {
+				_, st, err := score(p, g, fullFamily(g, 1), fullFamily(g, 1).Groups(), layout, Options{Workers: workers, RowRange: rr})
+				if err != nil {
+					t.Fatal(err)
+				}
+				if st.Lowest.Cut != c.cut || len(st.Lowest.Masses) != metrics.LowestValues || st.Lowest.Masses[0].Value != 1 {
+					t.Errorf("%s, rows %v, %d workers: smallest values %v cut %v, want %d values from 1, cut %v", c.name, rr, workers, st.Lowest.Masses, st.Lowest.Cut, metrics.LowestValues, c.cut)
+				}
+			}
+		}
 	}
 }
