@@ -762,10 +762,17 @@ func boyceNotJudged(s *Sensitivity, st Settings) string {
 // metrics, that its differences between extents were described, not
 // judged, and why (PartialROCExtentCoverage); "".
 func partialROCNotJudged(s *Sensitivity, st Settings) string {
+	at := ""
+	for _, e := range st.E {
+		if fmtG(e) != fmtG(PartialROCCoverageE) {
+			// Measured at E = 0.05 only (coverageWhere).
+			at = fmt.Sprintf(" at E = %s", fmtG(PartialROCCoverageE))
+		}
+	}
 	for _, m := range s.Metrics {
 		if m.Kind == MetricPartialROC {
-			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed %s.",
-				PartialROCExtentCoverage, toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
+			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed %s.",
+				PartialROCExtentCoverage, at, toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
 		}
 	}
 	return ""

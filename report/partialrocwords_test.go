@@ -147,3 +147,41 @@ func TestHeadlinePartialROCUndefinedOnBase(t *testing.T) {
 	checkWords(t, "headline", s.Headline, []string{want}, []string{"partial ROC ratio at E = 0.05 is undetermined"})
 	checkWords(t, "reply", reviewerText(r), []string{want}, nil)
 }
+
+// TestPartialROCCoverageMeasuredAtE: the coverage quoted for the partial
+// ROC ratio's differences between extents (PartialROCExtentCoverage) was
+// measured at E = 0.05 only, yet every E's sentences and reasons quoted
+// it bare ("E = 0.1 ... fall short of their 95% coverage: 38% to 90% in
+// our simulation check"), a measurement never made. At another E they
+// now say where it was measured; at E = 0.05 nothing changes.
+func TestPartialROCCoverageMeasuredAtE(t *testing.T) {
+	r := liftResampled(loadSample(t))
+	s := analyzed(t, r)
+	const where = ", measured at E = 0.05, not at E = 0.1"
+	seen := map[string]bool{}
+	for _, mv := range s.ModelVerdicts {
+		if !isPartialROCKey(mv.Metric) || mv.Largest < 0 {
+			continue
+		}
+		seen[mv.Metric] = true
+		has := strings.Contains(mv.Sentence, "in our simulation check"+where)
+		if has != (mv.Metric == MetricKeyPartialROC(0.1)) {
+			t.Errorf("%s of %s: %s", mv.Metric, mv.Model, mv.Sentence)
+		}
+		for _, d := range mv.Diffs {
+			if d.Position == positionNotCalibrated && strings.HasSuffix(d.NotJudged, where) != (mv.Metric == MetricKeyPartialROC(0.1)) {
+				t.Errorf("%s of %s on %s: reason %q", mv.Metric, mv.Model, d.Extent, d.NotJudged)
+			}
+		}
+	}
+	if !seen[MetricKeyPartialROC(0.05)] || !seen[MetricKeyPartialROC(0.1)] {
+		t.Fatalf("the sample's ratios described: %v; the test wants E = 0.05 and 0.1", seen)
+	}
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		if p.Metric == MetricKeyPartialROC(0.1) && p.notJudgedKind() == positionNotCalibrated && !strings.HasSuffix(p.NotJudgedReason(), where) {
+			t.Errorf("paired %s %s: %q", p.Model, p.Extent, p.NotJudgedReason())
+		}
+	}
+	checkWords(t, "methods", methodsText(r), []string{"between nested extents (" + PartialROCExtentCoverage + " in our simulation check at E = 0.05;"}, nil)
+}

@@ -432,7 +432,7 @@ func TestMethodsTextSituations(t *testing.T) {
 				// The partial ROC ratio's differences between extents are
 				// described, not judged (PartialROCExtentCoverage): said
 				// with the tolerances, not among the undetermined.
-				"The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95% coverage between nested extents (" + PartialROCExtentCoverage + " in our simulation check;",
+				"The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95% coverage between nested extents (" + PartialROCExtentCoverage + " in our simulation check at E = 0.05;",
 				"and we say only how many exceed our tolerance of ±0.05."},
 			notWant: []string{"For the partial ROC ratio at E = 0.05 and the partial ROC ratio at E = 0.1 the test records cannot tell", "on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,", "the base extent, base,"}},
 		{name: "no extent holds every test point",
