@@ -185,3 +185,24 @@ func TestPartialROCCoverageMeasuredAtE(t *testing.T) {
 	}
 	checkWords(t, "methods", methodsText(r), []string{"between nested extents (" + PartialROCExtentCoverage + " in our simulation check at E = 0.05;"}, nil)
 }
+
+// TestTermsVerdictsSayDescribed: the page's Terms defined "robust,
+// extent-sensitive, undetermined" as verdicts on how a score moves, with
+// nothing to say that the partial ROC ratio's differences between extents
+// (and the Boyce index's) get none of them, so a reader of a described
+// ratio's "undetermined" badge looked it up and found a verdict.
+func TestTermsVerdictsSayDescribed(t *testing.T) {
+	r := analyzedSample(t)
+	page, err := htmlPage(r, nil, methodsDoc{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(page)
+	i := strings.Index(text, "<dt>robust, extent-sensitive, undetermined</dt>")
+	if i < 0 {
+		t.Fatal("no Terms entry for the verdicts")
+	}
+	entry := text[i:]
+	entry = entry[:strings.Index(entry, "</dd>")]
+	checkWords(t, "Terms entry", entry, []string{"The partial ROC ratio&#39;s differences between extents and the Boyce index&#39;s get none of these: they are described"}, nil)
+}
