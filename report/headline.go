@@ -518,14 +518,64 @@ func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
 }
 
 // partialROCDescribed is the headline's sentence on the partial ROC ratio
-// (key, the first E) of the models of mvs when some of them has a
-// difference from the base extent: described, not judged
-// (PartialROCExtentCoverage), by how many differences lie beyond the
-// tolerance and the largest, per model, naming apart the models undefined
-// on the base extent and those with no difference for another reason; ""
-// when none has one.
+// (key, the first E) of the models of mvs: described, not judged
+// (PartialROCExtentCoverage), by how many differences from the base
+// extent lie beyond the tolerance and the largest, per model, naming
+// apart the models undefined on the base extent and those with no
+// difference for another reason; when no model has a difference, why
+// (undefined on the base extent: "is undetermined for coarse" said
+// nothing of it); "" when mvs is empty.
 func partialROCDescribed(a *analysis, mvs []ModelVerdict, key string) string {
-	var parts, undefined, none []string
+	parts, undefined, none := describedModels(a.base, mvs)
+	e := fmtG(a.r.Settings.E[0])
+	if len(parts) == 0 {
+		if w := noDifferenceWords(a.base, undefined, none); w != "" {
+			return fmt.Sprintf(" The partial ROC ratio at E = %s %s.", e, w)
+		}
+		return ""
+	}
+	return fmt.Sprintf(" The partial ROC ratio at E = %s is described, not judged, across extents (%s): %s%s.",
+		e, notCalibratedCoverage(MetricInfo{Key: key, Kind: MetricPartialROC}), joinList(parts), apartWords(a.base, undefined, none))
+}
+
+// apartWords names, after the description of the models with a
+// difference, those undefined on base and those with no difference for
+// another reason: "; it is undefined on base for coarse, so no difference
+// from it is formed; no difference from base could be formed for broad".
+func apartWords(base string, undefined, none []string) string {
+	out := ""
+	if len(undefined) > 0 {
+		out += fmt.Sprintf("; it is undefined on %s for %s, so no difference from it is formed", base, joinList(undefined))
+	}
+	if len(none) > 0 {
+		out += fmt.Sprintf("; no difference from %s could be formed for %s", base, joinList(none))
+	}
+	return out
+}
+
+// noDifferenceWords is the predicate of "The partial ROC ratio at E =
+// 0.05" when no model has a difference from base: "is undefined on base
+// for coarse, so no difference from it is formed", "has no difference
+// from base for broad", or both; "" when both lists are empty.
+func noDifferenceWords(base string, undefined, none []string) string {
+	var why []string
+	if len(undefined) > 0 {
+		why = append(why, fmt.Sprintf("is undefined on %s for %s, so no difference from it is formed", base, joinList(undefined)))
+	}
+	if len(none) > 0 {
+		why = append(why, fmt.Sprintf("has no difference from %s for %s", base, joinList(none)))
+	}
+	return joinList(why)
+}
+
+// describedModels words the description of a partial ROC ratio across
+// extents for each model of mvs with a difference from base: how many of
+// its differences lie beyond its tolerance and the largest ("for good 8
+// of 12 differences from base lie beyond ±0.05 (the largest +0.192 on
+// X)", then "for coarse 3 of 5 (...)"), and lists apart the models
+// undefined on base and those with no difference for another reason. The
+// headline and the reply to a reviewer say the same.
+func describedModels(base string, mvs []ModelVerdict) (parts, undefined, none []string) {
 	for _, mv := range mvs {
 		if mv.Largest < 0 && mv.baseScored && !mv.BaseDefined {
 			undefined = append(undefined, mv.Model)
@@ -548,21 +598,10 @@ func partialROCDescribed(a *analysis, mvs []ModelVerdict, key string) string {
 				lie = "lies"
 			}
 			parts = append(parts, fmt.Sprintf("for %s %d of %d difference%s from %s %s beyond ±%s (%s)",
-				mv.Model, beyond, defined, Plural(defined), a.base, lie, fmtG(tol), largest))
+				mv.Model, beyond, defined, Plural(defined), base, lie, fmtG(tol), largest))
 			continue
 		}
 		parts = append(parts, fmt.Sprintf("for %s %d of %d (%s)", mv.Model, beyond, defined, largest))
 	}
-	if len(parts) == 0 {
-		return ""
-	}
-	out := fmt.Sprintf(" The partial ROC ratio at E = %s is described, not judged, across extents (%s): %s",
-		fmtG(a.r.Settings.E[0]), notCalibratedCoverage(MetricInfo{Key: key, Kind: MetricPartialROC}), joinList(parts))
-	if len(undefined) > 0 {
-		out += fmt.Sprintf("; it is undefined on %s for %s, so no difference from it is formed", a.base, joinList(undefined))
-	}
-	if len(none) > 0 {
-		out += fmt.Sprintf("; no difference from %s could be formed for %s", a.base, joinList(none))
-	}
-	return out + "."
+	return parts, undefined, none
 }

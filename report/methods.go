@@ -308,8 +308,8 @@ func methodsInference(b *strings.Builder, r *Results) {
 		b.WriteString("\n\n")
 		return
 	}
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
-		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
 	b.WriteString(partialROCNotJudged(s, st))
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
@@ -734,11 +734,13 @@ func fewResamplesNote(r *Results) string {
 		MinPercentileResamples, n, len(r.Paired), r.Settings.PairedResamples, Plural(r.Settings.PairedResamples))
 }
 
-// defaultsNote says, inside the list of tolerances, that they are
+// defaultsNote says, inside the list of the tolerances the verdicts
+// judge against (AUC, omission rate and predicted area), that they are
 // areasweep's defaults when all of them are: not a published standard.
+// The partial ROC ratio's and the Boyce index's tolerances count what is
+// described, not judged: their own sentences name them (toleranceText).
 func defaultsNote(st Settings) string {
-	if st.ToleranceAUC == DefaultToleranceAUC && st.TolerancePartialROC == DefaultTolerancePartialROC &&
-		st.ToleranceOmission == DefaultToleranceOmission {
+	if st.ToleranceAUC == DefaultToleranceAUC && st.ToleranceOmission == DefaultToleranceOmission {
 		return "; areasweep's defaults, not a published standard"
 	}
 	return ""
@@ -749,8 +751,8 @@ func defaultsNote(st Settings) string {
 func boyceNotJudged(s *Sensitivity, st Settings) string {
 	for _, m := range s.Metrics {
 		if m.Kind == MetricBoyce {
-			return fmt.Sprintf(" The Boyce index's differences were described, not judged: their paired intervals fall short of their 95%% coverage (%s in our simulation check; the index from a sample of test records is biased against its value on the whole presence distribution), so no verdict or ranking rests on them, and we say only how many exceed ±%s.",
-				BoyceCoverage, fmtG(st.ToleranceBoyce))
+			return fmt.Sprintf(" The Boyce index's differences were described, not judged: their paired intervals fall short of their 95%% coverage (%s in our simulation check; the index from a sample of test records is biased against its value on the whole presence distribution), so no verdict or ranking rests on them, and we say only how many exceed %s.",
+				BoyceCoverage, toleranceText(MetricInfo{Kind: MetricBoyce, Tolerance: st.ToleranceBoyce}))
 		}
 	}
 	return ""
@@ -760,10 +762,17 @@ func boyceNotJudged(s *Sensitivity, st Settings) string {
 // metrics, that its differences between extents were described, not
 // judged, and why (PartialROCExtentCoverage); "".
 func partialROCNotJudged(s *Sensitivity, st Settings) string {
+	at := ""
+	for _, e := range st.E {
+		if fmtG(e) != fmtG(PartialROCCoverageE) {
+			// Measured at E = 0.05 only (coverageWhere).
+			at = fmt.Sprintf(" at E = %s", fmtG(PartialROCCoverageE))
+		}
+	}
 	for _, m := range s.Metrics {
 		if m.Kind == MetricPartialROC {
-			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed ±%s.",
-				PartialROCExtentCoverage, fmtG(st.TolerancePartialROC))
+			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed %s.",
+				PartialROCExtentCoverage, at, toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
 		}
 	}
 	return ""
@@ -845,6 +854,7 @@ func reviewerText(r *Results) string {
 	reviewerWhat(&b, r)
 	reviewerVerdicts(&b, s)
 	b.WriteString(aucAnswer(s))
+	b.WriteString(reviewerPartialROC(r))
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
@@ -914,8 +924,8 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 	}
 	b.WriteString(". ")
 	if n != 1 {
-		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, partial ROC ratio ±%s, omission rate and predicted area ±%s%s).%s ",
-			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.TolerancePartialROC), fmtG(st.ToleranceOmission), defaultsNote(st), boyceNotJudged(s, st)+partialROCNotJudged(s, st))
+		fmt.Fprintf(b, "For each score we compared every extent with %s on the test records both hold, with 95%% intervals from those records (the cells of an extent are its whole background, so the records are the only sample), and judged the differences against tolerances we chose (AUC ±%s, omission rate and predicted area ±%s%s).%s ",
+			referenceWord(s), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), boyceNotJudged(s, st)+partialROCNotJudged(s, st))
 		if n > 2 {
 			// One interval wholly outside makes a score extent-sensitive:
 			// with many extents that is easier to reach by chance.
@@ -996,6 +1006,35 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		}
 		fmt.Fprintf(b, "For %s %s (%s). ", joinList(undetermined), who, why)
 	}
+}
+
+// reviewerPartialROC describes the partial ROC ratio at the first E
+// across extents, as the headline does (describedModels): the reply says
+// its differences are described, not judged, and that it says how many
+// exceed the tolerance, so it gives them. "" with fewer than two scored
+// extents or no partial ROC verdict.
+func reviewerPartialROC(r *Results) string {
+	s := r.Sensitivity
+	if len(s.ScoredExtents) < 2 || len(r.Settings.E) == 0 {
+		return ""
+	}
+	key := MetricKeyPartialROC(r.Settings.E[0])
+	nowhere := s.scoredNowhere()
+	var mvs []ModelVerdict
+	for _, m := range s.ModelNames {
+		if mv := s.findModelVerdict(key, m); mv != nil && !slices.Contains(nowhere, m) {
+			mvs = append(mvs, *mv)
+		}
+	}
+	parts, undefined, none := describedModels(s.BaseExtent, mvs)
+	e := fmtG(r.Settings.E[0])
+	if len(parts) == 0 {
+		if w := noDifferenceWords(s.BaseExtent, undefined, none); w != "" {
+			return fmt.Sprintf("The partial ROC ratio at E = %s %s. ", e, w)
+		}
+		return ""
+	}
+	return fmt.Sprintf("The partial ROC ratio at E = %s, described only: %s%s. ", e, joinList(parts), apartWords(s.BaseExtent, undefined, none))
 }
 
 // sensitiveForEvery tells whether metric is extent-sensitive for every

@@ -581,6 +581,24 @@ const BoyceCoverage = "34% to 88%"
 // two models on one extent are judged).
 const PartialROCExtentCoverage = "38% to 90%"
 
+// PartialROCCoverageE is the E at which PartialROCExtentCoverage was
+// measured (metrics.TestPairedIntervalCoverage and TestCoverageSweep
+// score the ratio at E = 0.05 only).
+const PartialROCCoverageE = 0.05
+
+// coverageWhere says, after PartialROCExtentCoverage quoted for the
+// partial ROC ratio of key (a MetricInfo key), that it was measured at
+// another E when key's E is not PartialROCCoverageE: ", measured at E =
+// 0.05, not at E = 0.1"; "" at E = 0.05 or for another key. A range
+// quoted bare for E = 0.1 claimed a measurement never made.
+func coverageWhere(key string) string {
+	e, ok := strings.CutPrefix(key, "partial_roc_e")
+	if !ok || e == fmtG(PartialROCCoverageE) {
+		return ""
+	}
+	return fmt.Sprintf(", measured at E = %s, not at E = %s", fmtG(PartialROCCoverageE), e)
+}
+
 // PublishedPSize is how often the published bootstrap's P of the partial
 // ROC ratio (Peterson et al. 2008) falls below 0.05 on a model with no
 // skill, at E = 0.05, as metrics' TestPublishedBootstrapSize measures it
@@ -644,7 +662,7 @@ func notJudgedReason(kind, metric string, common, formed, cut int) string {
 // index's (BoyceCoverage, also for any other key).
 func notCalibratedWhy(metric string) string {
 	if isPartialROCKey(metric) {
-		return "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check"
+		return "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check" + coverageWhere(metric)
 	}
 	return "the Boyce index's paired intervals fall short of their 95% coverage: " + BoyceCoverage + " in our simulation check"
 }

@@ -396,7 +396,7 @@ func beyondCount(mv *ModelVerdict, tol float64) (defined, beyond int) {
 // (PartialROCExtentCoverage).
 func notCalibratedCoverage(m MetricInfo) string {
 	if m.Kind == MetricPartialROC {
-		return fmt.Sprintf("its paired intervals between extents fall short of their 95%% coverage: %s in our simulation check", PartialROCExtentCoverage)
+		return fmt.Sprintf("its paired intervals between extents fall short of their 95%% coverage: %s in our simulation check%s", PartialROCExtentCoverage, coverageWhere(m.Key))
 	}
 	return fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
 }

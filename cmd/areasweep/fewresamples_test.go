@@ -49,6 +49,10 @@ func TestDemoFewResamplesNotJudged(t *testing.T) {
 			case p.Defined && p.Method == "paired_resamples" && p.Kind == report.PairedKindExtent && strings.HasPrefix(p.Metric, "partial_roc_e"):
 				// Never judged between extents (report.PartialROCExtentCoverage).
 				want = "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + report.PartialROCExtentCoverage + " in our simulation check"
+				if e := strings.TrimPrefix(p.Metric, "partial_roc_e"); e != "0.05" {
+					// Measured at E = 0.05 only (report.PartialROCCoverageE).
+					want += ", measured at E = 0.05, not at E = " + e
+				}
 			}
 			if p.Method == "paired_resamples" {
 				resampled[p.Metric] = true

@@ -242,6 +242,11 @@
 #     their positions become not_calibrated, and the ratio's verdicts,
 #     headline and sentences describe; no number changed, scores.csv
 #     unchanged).
+#   - rewritten on branch h20 of 2026-12-05 (the coverage quoted for the
+#     partial ROC ratio between extents was measured at E = 0.05 only: at
+#     the demo's E = 0.1 its not_judged_reason and sentences now add ",
+#     measured at E = 0.05, not at E = 0.1"; no number changed, scores.csv
+#     unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

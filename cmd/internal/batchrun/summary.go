@@ -61,6 +61,13 @@ func writeSummary(o *Options, studies []*study, errs []error) (string, error) {
 			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
+		// The sensitivity analysis is recomputed from the scores, as
+		// areasweep report does: a results.json written by an earlier
+		// areasweep keeps that version's verdicts (one from before the
+		// partial ROC ratio's differences between extents were described
+		// rather than judged calls them extent-sensitive), and the
+		// summary must say what the studies' re-rendered reports say.
+		r.Sensitivity = nil
 		rs[i].Results, rs[i].Report = r, st.id+"/report.html"
 	}
 	s, err := report.Summarize(rs)
