@@ -901,21 +901,9 @@ func TestMultiBandModelWarns(t *testing.T) {
 	if _, se, code := runBin(t, append([]string{"run", "--out", single}, base...)...); code != 0 {
 		t.Fatalf("single run: exit %d: %s", code, se)
 	}
-	merged := filepath.Join(t.TempDir(), "merged")
-	margs := []string{"merge", "--quiet", "--out", merged}
-	for i := 1; i <= 2; i++ {
-		out := filepath.Join(t.TempDir(), fmt.Sprint("shard", i))
-		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
-			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
-		}
-		margs = append(margs, out)
-	}
-	if _, se, code := runBin(t, margs...); code != 0 {
-		t.Fatalf("merge: exit %d: %s", code, se)
-	}
-	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
-	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
-	if len(a) == 0 || !bytes.Equal(a, b) {
+	mdir := t.TempDir()
+	merged := filepath.Join(mdir, "merged")
+	if mergedDiffers(t, mdir, single, base) {
 		t.Error("a two-band model: the merged results.json differs from the single run's")
 	}
 	n := 0
@@ -998,4 +986,27 @@ func outputFiles(dir string) map[string][]byte {
 		return nil
 	})
 	return m
+}
+
+// mergedDiffers runs the study base (run's flags without --out) as two
+// row shards in dir, merges them into dir/merged and reports whether the
+// merged results.json differs from the one in single (a run of the whole
+// study), or is empty.
+func mergedDiffers(t *testing.T, dir, single string, base []string) bool {
+	t.Helper()
+	merged := filepath.Join(dir, "merged")
+	margs := []string{"merge", "--quiet", "--out", merged}
+	for i := 1; i <= 2; i++ {
+		out := filepath.Join(dir, fmt.Sprint("shard", i))
+		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
+			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
+		}
+		margs = append(margs, out)
+	}
+	if _, se, code := runBin(t, margs...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, se)
+	}
+	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
+	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
+	return len(a) == 0 || !bytes.Equal(a, b)
 }

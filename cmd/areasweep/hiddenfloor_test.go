@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -96,21 +95,7 @@ func TestHiddenFloorThroughRun(t *testing.T) {
 	if whole == 0 || part == 0 {
 		t.Fatalf("defined ratios on the base %d, on the western extent %d: the test sees neither case", whole, part)
 	}
-	merged := filepath.Join(dir, "merged")
-	margs := []string{"merge", "--quiet", "--out", merged}
-	for i := 1; i <= 2; i++ {
-		out := filepath.Join(dir, fmt.Sprint("shard", i))
-		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
-			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
-		}
-		margs = append(margs, out)
-	}
-	if _, se, code := runBin(t, margs...); code != 0 {
-		t.Fatalf("merge: exit %d: %s", code, se)
-	}
-	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
-	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
-	if len(a) == 0 || !bytes.Equal(a, b) {
+	if mergedDiffers(t, dir, single, base) {
 		t.Error("the merged results.json differs from the single run's")
 	}
 }
@@ -185,21 +170,7 @@ func TestPlateauPastRisingRowsThroughRun(t *testing.T) {
 	if defined == 0 {
 		t.Fatal("no defined ratio: the test sees nothing")
 	}
-	merged := filepath.Join(dir, "merged")
-	margs := []string{"merge", "--quiet", "--out", merged}
-	for i := 1; i <= 2; i++ {
-		out := filepath.Join(dir, fmt.Sprint("shard", i))
-		if _, se, code := runBin(t, append([]string{"run", "--out", out, "--shard", fmt.Sprint(i, "/2")}, base...)...); code != 0 {
-			t.Fatalf("shard %d/2: exit %d: %s", i, code, se)
-		}
-		margs = append(margs, out)
-	}
-	if _, se, code := runBin(t, margs...); code != 0 {
-		t.Fatalf("merge: exit %d: %s", code, se)
-	}
-	a, _ := os.ReadFile(filepath.Join(single, "results.json"))
-	b, _ := os.ReadFile(filepath.Join(merged, "results.json"))
-	if len(a) == 0 || !bytes.Equal(a, b) {
+	if mergedDiffers(t, dir, single, base) {
 		t.Error("the merged results.json differs from the single run's")
 	}
 }
