@@ -855,6 +855,7 @@ func reviewerText(r *Results) string {
 	reviewerVerdicts(&b, s)
 	b.WriteString(aucAnswer(s))
 	b.WriteString(reviewerPartialROC(r))
+	b.WriteString(reviewerBoyce(r))
 	for _, rk := range s.Rankings {
 		if rk.Metric == "auc" && rk.identical() {
 			fmt.Fprintf(&b, "By AUC, %s and %s scored the same on %s. ", rk.Model, rk.Other, allExtents(rk.Extents))
@@ -1014,11 +1015,31 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 // exceed the tolerance, so it gives them. "" with fewer than two scored
 // extents or no partial ROC verdict.
 func reviewerPartialROC(r *Results) string {
-	s := r.Sensitivity
-	if len(s.ScoredExtents) < 2 || len(r.Settings.E) == 0 {
+	if len(r.Settings.E) == 0 {
 		return ""
 	}
-	key := MetricKeyPartialROC(r.Settings.E[0])
+	return reviewerDescribed(r, MetricKeyPartialROC(r.Settings.E[0]), "The partial ROC ratio at E = "+fmtG(r.Settings.E[0]))
+}
+
+// reviewerBoyce describes the Boyce index across extents as
+// reviewerPartialROC does the partial ROC ratio: the reply says that of
+// its differences too it gives only how many exceed the tolerance
+// (boyceNotJudged), and gave no number.
+func reviewerBoyce(r *Results) string {
+	return reviewerDescribed(r, MetricKeyBoyce, "The Boyce index")
+}
+
+// reviewerDescribed is the reply's description of the metric key (a
+// metric described, not judged, between extents; name starts its
+// sentence) for each model that has it: how many differences from the
+// base extent lie beyond the tolerance and the largest
+// (describedModels). "" with fewer than two scored extents or no verdict
+// on the metric.
+func reviewerDescribed(r *Results, key, name string) string {
+	s := r.Sensitivity
+	if len(s.ScoredExtents) < 2 {
+		return ""
+	}
 	nowhere := s.scoredNowhere()
 	var mvs []ModelVerdict
 	for _, m := range s.ModelNames {
@@ -1027,14 +1048,13 @@ func reviewerPartialROC(r *Results) string {
 		}
 	}
 	parts, undefined, none := describedModels(s.BaseExtent, mvs)
-	e := fmtG(r.Settings.E[0])
 	if len(parts) == 0 {
 		if w := noDifferenceWords(s.BaseExtent, undefined, none); w != "" {
-			return fmt.Sprintf("The partial ROC ratio at E = %s %s. ", e, w)
+			return fmt.Sprintf("%s %s. ", name, w)
 		}
 		return ""
 	}
-	return fmt.Sprintf("The partial ROC ratio at E = %s, described only: %s%s. ", e, joinList(parts), apartWords(s.BaseExtent, undefined, none))
+	return fmt.Sprintf("%s, described only: %s%s. ", name, joinList(parts), apartWords(s.BaseExtent, undefined, none))
 }
 
 // sensitiveForEvery tells whether metric is extent-sensitive for every

@@ -113,6 +113,56 @@ func TestReplyGivesPartialROCDescription(t *testing.T) {
 	checkWords(t, "reply's partial ROC sentence", sentence, nil, []string{"robust", "extent-sensitive", "undetermined", "beyond noise", "95% interval"})
 }
 
+// TestReplyGivesBoyceDescription: the reply said the Boyce index's
+// differences were described "and we say only how many exceed ±0.1" and
+// gave no number (found by the audit of 2026-12-05). It now gives each
+// model's count beyond the tolerance and its largest difference, read
+// here from the sensitivity analysis.
+func TestReplyGivesBoyceDescription(t *testing.T) {
+	r := liftResampled(loadSample(t))
+	s := analyzed(t, r)
+	reply := reviewerText(r)
+	if !strings.Contains(reply, "we say only how many exceed") {
+		t.Fatalf("the reply does not promise the Boyce index's counts; the test needs it to: %s", reply)
+	}
+	i := strings.Index(reply, "The Boyce index, described only: ")
+	if i < 0 {
+		t.Fatalf("the reply gives no description of the Boyce index: %s", reply)
+	}
+	sentence := reply[i:]
+	sentence = sentence[:strings.Index(sentence, ". ")+1]
+	described := 0
+	for _, mv := range s.ModelVerdicts {
+		if mv.Metric != MetricKeyBoyce || mv.Largest < 0 {
+			continue
+		}
+		described++
+		defined, beyond := 0, 0
+		for _, d := range mv.Diffs {
+			if d.Defined {
+				defined++
+				if math.Abs(d.Diff) > mv.Tolerance {
+					beyond++
+				}
+			}
+		}
+		big := mv.Diffs[mv.Largest]
+		largest := fmt.Sprintf(`the largest %s on %s`, regexp.QuoteMeta(signedSmall(big.Diff)), regexp.QuoteMeta(big.Extent))
+		if big.Diff == 0 {
+			largest = "every one 0"
+		}
+		want := regexp.MustCompile(fmt.Sprintf(`for %s %d of %d( differences from base lie beyond ±%s)? \(%s\)`,
+			regexp.QuoteMeta(mv.Model), beyond, defined, regexp.QuoteMeta(fmtG(mv.Tolerance)), largest))
+		if !want.MatchString(sentence) {
+			t.Errorf("%s: %q not in %s", mv.Model, want, sentence)
+		}
+	}
+	if described < 2 {
+		t.Fatalf("%d models described: the test wants several", described)
+	}
+	checkWords(t, "reply's Boyce sentence", sentence, nil, []string{"robust", "extent-sensitive", "undetermined", "beyond noise", "95% interval"})
+}
+
 // TestHeadlinePartialROCUndefinedOnBase: with the ratio at the first E
 // undefined on the base extent for every model, the headline said "The
 // partial ROC ratio at E = 0.05 is undetermined for good, truncated and
