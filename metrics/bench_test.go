@@ -269,6 +269,7 @@ type pairedRun struct {
 	evals [][]*Evaluator // [model][extent]
 	base  int
 	d     Draws
+	opt   CompareOptions // what a run passes (BoyceUnresampled) unless set
 }
 
 // newPairedRun builds the evaluators of models x extents: extent k holds
@@ -340,12 +341,16 @@ func newPairedRun(b *testing.B, models, extents, presences int, continuous bool)
 func (pr *pairedRun) run(b *testing.B) {
 	for _, row := range pr.evals {
 		for _, ev := range row {
-			ev.own.done = false
+			ev.own = nil
 			ev.BootSD(pr.d)
 		}
 	}
+	om := make([][2]int, len(pr.evals[0][0].cut))
+	for t := range om {
+		om[t] = [2]int{t, t}
+	}
 	cmp := func(x, y *Evaluator) {
-		if _, err := Compare(x, y, pr.d); err != nil {
+		if _, err := CompareWith(x, y, pr.d, om, pr.opt); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -371,19 +376,26 @@ func (pr *pairedRun) run(b *testing.B) {
 // memos of resampled scores and every BootSD) with 500 test presences, B
 // = 1000, three models (the last one standing for the null) by the number
 // of extents, with some ties among the presences' values, and at 60
-// extents without ties too (continuous); cpu-ns/op is the thread's CPU
-// time (one goroutine), immune to time-slicing by other processes.
+// extents without ties too (continuous), with the Boyce index left out of
+// the resamples as a run does (CompareOptions.BoyceUnresampled) and, at
+// 60 extents, resampled too (boyce-resampled: what a run paid before);
+// cpu-ns/op is the thread's CPU time (one goroutine), immune to
+// time-slicing by other processes.
 func BenchmarkPairedRun(b *testing.B) {
 	for _, c := range []struct {
-		extents    int
-		continuous bool
-	}{{20, false}, {60, false}, {60, true}} {
+		extents           int
+		continuous, boyce bool
+	}{{20, false, false}, {60, false, false}, {60, true, false}, {60, false, true}} {
 		name := fmt.Sprintf("extents=%d", c.extents)
 		if c.continuous {
 			name += "/continuous"
 		}
+		if c.boyce {
+			name += "/boyce-resampled"
+		}
 		b.Run(name, func(b *testing.B) {
 			pr := newPairedRun(b, 3, c.extents, 500, c.continuous)
+			pr.opt.BoyceUnresampled = !c.boyce
 			b.ReportAllocs()
 			stop := startCPU(b)
 			for i := 0; i < b.N; i++ {

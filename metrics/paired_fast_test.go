@@ -321,12 +321,12 @@ func BenchmarkBootSD(b *testing.B) {
 func BenchmarkOwnResamples(b *testing.B) {
 	pr := newPairedRun(b, 1, 1, 500, false)
 	ev := pr.evals[0][0]
-	ev.ownResamples(pr.d) // the table of counts, drawn once
+	ev.ownResamples(pr.d, true) // the table of counts, drawn once
 	b.ReportAllocs()
 	stop := startCPU(b)
 	for i := 0; i < b.N; i++ {
-		ev.own.done = false
-		ev.ownResamples(pr.d)
+		ev.own = nil
+		ev.ownResamples(pr.d, true)
 	}
 	stop()
 }
@@ -397,12 +397,12 @@ func TestCompareMatchesReference(t *testing.T) {
 		var cmp Comparison
 		cmp.PartialROC, cmp.Omission = make([]Resampled, nE), make([]Resampled, nT)
 		for i := range cmp.PartialROC {
-			cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
+			cmp.PartialROC[i] = Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: fa.RatioOK[i] && fb.RatioOK[i], Scored: fa.RatioOK[i] && fb.RatioOK[i], Resamples: d.B}
 		}
 		for i := range cmp.Omission {
-			cmp.Omission[i] = Resampled{A: fa.Omission[i], B: fb.Omission[i], Defined: fa.N > 0, Resamples: d.B}
+			cmp.Omission[i] = Resampled{A: fa.Omission[i], B: fb.Omission[i], Defined: fa.N > 0, Scored: fa.N > 0, Resamples: d.B}
 		}
-		cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
+		cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: fa.BoyceOK && fb.BoyceOK, Scored: fa.BoyceOK && fb.BoyceOK, Resamples: d.B}
 		diffs := make([][]float64, nE+nT+1)
 		same := make([][2]int, nT)
 		for t := range same {

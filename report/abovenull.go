@@ -276,8 +276,11 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 						g.AreaKm2 = a.r.Extents[i].AreaKm2
 					}
 					if p.Defined {
-						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, p.SE, p.Low, p.High
-						g.Reading = gapReading(p.Low, p.High)
+						// A model against a null is judged: its records
+						// carry an interval (Validate).
+						se, lo, hi, _ := p.Interval()
+						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, se, lo, hi
+						g.Reading = gapReading(lo, hi)
 						a.setModelVsRandom(m.Kind, m.Key, model, n.Name, &g)
 						if k := p.notJudgedKind(); k != "" {
 							g.Reading, g.NotJudged = k, p.NotJudgedReason()

@@ -40,13 +40,13 @@ func TestAboveNullReadings(t *testing.T) {
 			CommonPoints: 10, Method: "placements", Defined: true, A: 0.8, B: 0.7}
 		switch {
 		case e.ID == base:
-			p.Diff, p.SE, p.Low, p.High = 0.1, 0.02, 0.06, 0.14
+			p.Diff, p.SE, p.Low, p.High = 0.1, Float(0.02), Float(0.06), Float(0.14)
 			want[e.ID] = ReadingAbove
 		case i%2 == 0:
-			p.Diff, p.SE, p.Low, p.High = 0.01, 0.02, -0.03, 0.05
+			p.Diff, p.SE, p.Low, p.High = 0.01, Float(0.02), Float(-0.03), Float(0.05)
 			want[e.ID] = ReadingNotAbove
 		default:
-			p.Diff, p.SE, p.Low, p.High = -0.1, 0.02, -0.14, -0.06
+			p.Diff, p.SE, p.Low, p.High = -0.1, Float(0.02), Float(-0.14), Float(-0.06)
 			want[e.ID] = ReadingBelow
 			below++
 		}
@@ -111,7 +111,7 @@ func TestAboveNullReadings(t *testing.T) {
 	// A null that the model does not beat on the base extent.
 	for i := range r.Paired {
 		if r.Paired[i].Kind == PairedKindNull && r.Paired[i].Extent == base {
-			r.Paired[i].Low = -0.01
+			r.Paired[i].Low = Float(-0.01)
 		}
 	}
 	if err := Analyze(r); err != nil {
@@ -128,7 +128,7 @@ func TestAboveNullReadings(t *testing.T) {
 	// beat" or "not above" would understate it.
 	for i := range r.Paired {
 		if r.Paired[i].Kind == PairedKindNull && r.Paired[i].Extent == base {
-			r.Paired[i].Diff, r.Paired[i].Low, r.Paired[i].High = -0.1, -0.14, -0.06
+			r.Paired[i].Diff, r.Paired[i].Low, r.Paired[i].High = -0.1, Float(-0.14), Float(-0.06)
 		}
 	}
 	if err := Analyze(r); err != nil {

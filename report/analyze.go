@@ -246,7 +246,8 @@ func checkFinite(r *Results) error {
 		}
 	}
 	for _, p := range r.Paired {
-		if bad(p.A) || bad(p.B) || bad(p.Diff) || bad(p.SE) || bad(p.Low) || bad(p.High) || bad(p.TestSetShift) {
+		se, lo, hi, _ := p.Interval()
+		if bad(p.A) || bad(p.B) || bad(p.Diff) || bad(se) || bad(lo) || bad(hi) || bad(p.TestSetShift) {
 			return fmt.Errorf("report: paired %s of %s/%s against %s/%s is not finite", p.Metric, p.Model, p.Extent, p.OtherModel, p.OtherExtent)
 		}
 	}

@@ -172,7 +172,10 @@ type BatchVerdict struct {
 	Defined                     bool
 	Extent                      string
 	Diff, Low, High             float64
-	Method                      string
+	// Interval is false when the difference has no interval (Low and
+	// High 0): a point_difference (ExtentDifference.Low).
+	Interval bool
+	Method   string
 	// NotJudged says why that difference is not judged
 	// (ExtentDifference.NotJudged, or noDifference when there is none);
 	// "" when it is.
@@ -433,7 +436,9 @@ func studyRow(r *Results, id, model string) BatchRow {
 		if k := effectIndex(mv); k >= 0 {
 			d := mv.Diffs[k]
 			row.EffectDefined, row.EffectExtent = true, d.Extent
-			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, d.Low, d.High
+			// The AUC's differences carry an interval (placements).
+			lo, hi, _ := d.Interval()
+			row.Effect, row.EffectLow, row.EffectHigh = d.Diff, lo, hi
 			row.EffectPoints, row.EffectJudged, row.EffectNotJudged = d.CommonPoints, !d.notJudged(), d.why()
 		} else {
 			row.EffectNotJudged = noDifferenceWhy(r, mv)
@@ -564,7 +569,8 @@ func batchVerdict(r *Results, study string, mv ModelVerdict) BatchVerdict {
 		Verdict: mv.Verdict, BaseExtent: mv.Base}
 	if k := effectIndex(mv); k >= 0 {
 		d := mv.Diffs[k]
-		v.Defined, v.Extent, v.Diff, v.Low, v.High, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Low, d.High, d.Method, d.why()
+		v.Low, v.High, v.Interval = d.Interval()
+		v.Defined, v.Extent, v.Diff, v.Method, v.NotJudged = true, d.Extent, d.Diff, d.Method, d.why()
 	} else {
 		v.NotJudged = noDifferenceWhy(r, mv)
 	}

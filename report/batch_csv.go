@@ -115,7 +115,7 @@ func (s *BatchSummary) WriteVerdictsCSV(w io.Writer) error {
 	for _, v := range s.Verdicts {
 		recs = append(recs, []string{
 			v.Study, v.Model, v.Metric, v.Label, num(v.Tolerance, true), string(v.Verdict), v.BaseExtent,
-			v.Extent, num(v.Diff, v.Defined), num(v.Low, v.Defined), num(v.High, v.Defined), v.Method, v.NotJudged,
+			v.Extent, num(v.Diff, v.Defined), num(v.Low, v.Defined && v.Interval), num(v.High, v.Defined && v.Interval), v.Method, v.NotJudged,
 		})
 	}
 	if err := cw.WriteAll(recs); err != nil {

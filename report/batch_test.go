@@ -77,7 +77,7 @@ func handStudy(tol float64, models ...handModel) *Results {
 			Verdict: JudgementUndetermined, Largest: -1}
 		outside, inside := 0, 0
 		for i, e := range hm.effects {
-			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: e.low, High: e.high, Method: "placements",
+			d := ExtentDifference{Extent: e.extent, Defined: true, Diff: e.diff, Low: Float(e.low), High: Float(e.high), Method: "placements",
 				Position: position(e.low, e.high, tol), CommonPoints: hm.points}
 			if hm.points > 0 && hm.points < MinPairedPoints {
 				d.Position = positionTooFew
@@ -1102,7 +1102,7 @@ func TestSummaryUnscoredModel(t *testing.T) {
 func TestEffectLargestMagnitude(t *testing.T) {
 	r := loadSample(t)
 	if setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
-		p.CommonPoints, p.Diff, p.Low, p.High = 5, -0.3, -0.5, -0.1
+		p.CommonPoints, p.Diff, p.Low, p.High = 5, -0.3, Float(-0.5), Float(-0.1)
 	}) != 1 {
 		t.Fatal("no record of good on points_b25")
 	}

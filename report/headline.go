@@ -95,7 +95,7 @@ func verdictPhrase(mv *ModelVerdict) string {
 	}
 	d := mv.Diffs[mv.Largest]
 	tol := mv.Tolerance
-	if notCalibrated(mv.Metric, PairedKindExtent) {
+	if NotCalibrated(mv.Metric, PairedKindExtent) {
 		// Described, not judged (the Boyce index, a partial ROC ratio):
 		// how many differences lie beyond the tolerance, and the largest.
 		defined, beyond := beyondCount(mv, tol)
@@ -124,11 +124,13 @@ func verdictPhrase(mv *ModelVerdict) string {
 		// on too few test points exists: "largest difference" alone would
 		// misstate it (the reply's range reaches that extent).
 		big := mv.Diffs[k]
+		lo, hi, _ := d.Interval()
 		return fmt.Sprintf("%s (largest judged difference from %s %s on %s, 95%% interval %s to %s; a larger one, %s on %s, is not judged, %s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
-			signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), signedSmall(big.Diff), big.Extent, big.why())
+			signedSmall(lo, tol, -tol), signedSmall(hi, tol, -tol), signedSmall(big.Diff), big.Extent, big.why())
 	}
+	lo, hi, _ := d.Interval() // judged: it has one
 	return fmt.Sprintf("%s (largest difference from %s %s on %s, 95%% interval %s to %s%s)", mv.Verdict, mv.Base, signedSmall(d.Diff), d.Extent,
-		signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol), undeterminedWhy(mv, d))
+		signedSmall(lo, tol, -tol), signedSmall(hi, tol, -tol), undeterminedWhy(mv, d))
 }
 
 // largestDefined is the index in ds of the defined difference of largest

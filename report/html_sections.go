@@ -165,7 +165,8 @@ func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlT
 				rows = append(rows, row)
 				continue
 			}
-			row = append(row, nc(d.Diff, 4), cell{text: f4(d.Low) + " to " + f4(d.High), num: d.Low, isN: true, cls: "n"},
+			lo, hi, _ := d.Interval() // judged: it has one
+			row = append(row, nc(d.Diff, 4), cell{text: f4(lo) + " to " + f4(hi), num: lo, isN: true, cls: "n"},
 				tc(strings.ReplaceAll(d.Method, "_", " ")), nc(d.TestSetShift, 4), tc(d.Position))
 			rows = append(rows, row)
 		}

@@ -751,7 +751,7 @@ func defaultsNote(st Settings) string {
 func boyceNotJudged(s *Sensitivity, st Settings) string {
 	for _, m := range s.Metrics {
 		if m.Kind == MetricBoyce {
-			return fmt.Sprintf(" The Boyce index's differences were described, not judged: their paired intervals fall short of their 95%% coverage (%s in our simulation check; the index from a sample of test records is biased against its value on the whole presence distribution), so no verdict or ranking rests on them, and we say only how many exceed %s.",
+			return fmt.Sprintf(" The Boyce index's differences were described, not judged: their paired intervals fall short of their 95%% coverage (%s in our simulation check; the index from a sample of test records is biased against its value on the whole presence distribution), so no verdict or ranking rests on them, we give them no interval, and we say only how many exceed %s.",
 				BoyceCoverage, toleranceText(MetricInfo{Kind: MetricBoyce, Tolerance: st.ToleranceBoyce}))
 		}
 	}
@@ -771,7 +771,7 @@ func partialROCNotJudged(s *Sensitivity, st Settings) string {
 	}
 	for _, m := range s.Metrics {
 		if m.Kind == MetricPartialROC {
-			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, and we say only how many exceed %s.",
+			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, we give them no interval, and we say only how many exceed %s.",
 				PartialROCExtentCoverage, at, toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
 		}
 	}
@@ -943,7 +943,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	var robust, sensitive, sensitiveAll, undetermined []string
 	omissionRobust := false // an omission rate is robust by construction
 	for _, v := range s.Verdicts {
-		if notCalibrated(v.Metric, PairedKindExtent) {
+		if NotCalibrated(v.Metric, PairedKindExtent) {
 			continue // described, not judged: said with the tolerances
 		}
 		label := v.Label

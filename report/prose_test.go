@@ -176,7 +176,7 @@ func TestAnalysisRankingLeaderFirst(t *testing.T) {
 			r := loadSample(t)
 			for i := range r.Paired {
 				if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" && p.Defined {
-					p.Diff, p.Low, p.High = c.diff, c.lo, c.hi
+					p.Diff, p.Low, p.High = c.diff, Float(c.lo), Float(c.hi)
 				}
 			}
 			s := analyzed(t, r)
@@ -255,9 +255,9 @@ func TestDecompositionIdenticalCapitalised(t *testing.T) {
 // difference from base +0.040 on a, 95% interval +0.035 to +0.045)" was
 // written, with ±0.05).
 func TestUndeterminedPhraseSaysWhy(t *testing.T) {
-	inside := ExtentDifference{Extent: "a", Defined: true, Method: "placements", Diff: 0.04, Low: 0.035, High: 0.045, Position: "inside"}
-	wide := ExtentDifference{Extent: "b", Defined: true, Method: "placements", Diff: 0.01, Low: -0.06, High: 0.08, Position: "overlapping"}
-	few := ExtentDifference{Extent: "c", Defined: true, Method: "placements", CommonPoints: 6, Diff: 0.01, Low: -0.2, High: 0.2, Position: positionTooFew, minPoints: 10}
+	inside := ExtentDifference{Extent: "a", Defined: true, Method: "placements", Diff: 0.04, Low: Float(0.035), High: Float(0.045), Position: "inside"}
+	wide := ExtentDifference{Extent: "b", Defined: true, Method: "placements", Diff: 0.01, Low: Float(-0.06), High: Float(0.08), Position: "overlapping"}
+	few := ExtentDifference{Extent: "c", Defined: true, Method: "placements", CommonPoints: 6, Diff: 0.01, Low: Float(-0.2), High: Float(0.2), Position: positionTooFew, minPoints: 10}
 	undef := ExtentDifference{Extent: "d"}
 	mk := func(v Judgement, ds ...ExtentDifference) *ModelVerdict {
 		mv := &ModelVerdict{Verdict: v, Base: "base", Tolerance: 0.05, Largest: 0, Diffs: ds}
@@ -482,7 +482,7 @@ func TestRobustPhraseEveryZero(t *testing.T) {
 	}
 	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Largest: 0, Diffs: []ExtentDifference{zero("hull"), zero("whole")}}
 	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (every difference from base is 0)"}, []string{"largest", "hull"})
-	mv.Diffs[1].Diff, mv.Diffs[1].Low, mv.Diffs[1].High, mv.Largest = 0.004, 0.001, 0.007, 1
+	mv.Diffs[1].Diff, mv.Diffs[1].Low, mv.Diffs[1].High, mv.Largest = 0.004, Float(0.001), Float(0.007), 1
 	checkWords(t, "phrase", verdictPhrase(mv), []string{"robust (largest difference from base +0.004 on whole, 95% interval +0.001 to +0.007)"}, nil)
 }
 
@@ -695,7 +695,7 @@ func TestSharePercentsAddUp(t *testing.T) {
 // extents" were written).
 func TestFewExtentsQuantifiers(t *testing.T) {
 	within := func(ext string) ExtentDifference {
-		return ExtentDifference{Extent: ext, Defined: true, Diff: 0.01, Low: -0.02, High: 0.04, Position: "inside"}
+		return ExtentDifference{Extent: ext, Defined: true, Diff: 0.01, Low: Float(-0.02), High: Float(0.04), Position: "inside"}
 	}
 	zero := func(ext string) ExtentDifference {
 		return ExtentDifference{Extent: ext, Defined: true, Position: "inside"}
@@ -797,7 +797,7 @@ func TestChainSlopeNotPrintedAsZero(t *testing.T) {
 // every test point above nearly every cell); below 5e-7 (our cut-off)
 // it stays "+0.000". Expected strings worked by hand.
 func TestTinyDifferencesNotPrintedAsZero(t *testing.T) {
-	d := ExtentDifference{Extent: "hull", Defined: true, Diff: -0.0003, Low: -0.00034, High: -0.00026, Method: "placements", Position: "inside"}
+	d := ExtentDifference{Extent: "hull", Defined: true, Diff: -0.0003, Low: Float(-0.00034), High: Float(-0.00026), Method: "placements", Position: "inside"}
 	mv := &ModelVerdict{Verdict: JudgementRobust, Base: "base", Tolerance: 0.02, Diffs: []ExtentDifference{d}, Largest: 0, BaseDefined: true}
 	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"robust (largest difference from base -0.0003 on hull, 95% interval -0.0003 to -0.0003)"}, []string{"+0.000"})
 	checkWords(t, "difference", differenceText(d, 0.02), []string{"-0.0003 on hull (95% interval -0.0003 to -0.0003)"}, []string{"0.000 "})

@@ -46,7 +46,17 @@ import (
 // test points each resample of the published bootstrap draws, on which
 // whether the report gives its interval and P now rests
 // (BootstrapReadable). A version 4 file has none, and is refused.
-const SchemaVersion = 5
+//
+// Version 6 writes the differences that are described, not judged (the
+// Boyce index's, and the partial ROC ratio's between two extents) with
+// method "point_difference": the two scores on the common test points and
+// their difference, without se, ci_low, ci_high or resamples (their
+// intervals fall short of their 95% coverage: BoyceCoverage,
+// PartialROCExtentCoverage), in paired and in sensitivity; and leaves
+// se, ci_low and ci_high out of an undefined difference instead of
+// writing 0. A version 5 file, whose intervals for those differences
+// would be printed again by an older report, is refused.
+const SchemaVersion = 6
 
 // Results is the whole of one run as written to results.json. Every slice is
 // kept in a stable order (extents in family order, scores by model then
@@ -456,6 +466,13 @@ type Preview struct {
 // Method "paired_resamples": the other scores, over the run's full-size
 // paired resamples restricted to the common points; SE is the SD of the
 // resampled differences and the interval their 2.5 and 97.5 percentiles.
+// Method "point_difference": the differences that are described, not
+// judged (notCalibrated: the Boyce index's, and the partial ROC ratio's
+// between two extents): the two scores on the common points and their
+// difference only, with no SE, interval or resamples, since the
+// intervals measured for them fall short of their 95% coverage
+// (BoyceCoverage, PartialROCExtentCoverage) and an interval that does
+// is not one to print.
 type Paired struct {
 	// Metric is a MetricInfo key ("auc", "partial_roc_e0.05", ...).
 	Metric      string   `json:"metric"`
@@ -474,9 +491,13 @@ type Paired struct {
 	A    float64 `json:"a"`
 	B    float64 `json:"b"`
 	Diff float64 `json:"diff"`
-	SE   float64 `json:"se"`
-	Low  float64 `json:"ci_low"`
-	High float64 `json:"ci_high"`
+	// SE, Low and High are the standard error and the 95% interval of
+	// Diff: there for methods placements and paired_resamples (when
+	// Defined), absent for point_difference (and for an undefined
+	// difference), never read as 0.
+	SE   *float64 `json:"se,omitempty"`
+	Low  *float64 `json:"ci_low,omitempty"`
+	High *float64 `json:"ci_high,omitempty"`
 	// Resamples and NotFormed count the paired resamples drawn and those
 	// that could not form the score (paired_resamples only).
 	Resamples int `json:"resamples"`
@@ -515,9 +536,10 @@ func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 // notJudgedKind is positionTooFew when p rests on fewer common test
 // points than it is judged on (minPoints), positionTooFewResamples when
 // its percentile interval comes from fewer than MinPercentileResamples
-// formed resamples, positionNotCalibrated for any other Boyce index
-// difference from the resamples (BoyceCoverage) and any other partial ROC
-// ratio difference between two extents (PartialROCExtentCoverage), ""
+// formed resamples, positionNotCalibrated for any other point_difference
+// (a run writes the Boyce index's differences, BoyceCoverage, and the
+// partial ROC ratio's between two extents, PartialROCExtentCoverage, so)
+// and any such difference of method paired_resamples, ""
 // when p is judged. Too few points is said first: it is the reason
 // whatever the resamples.
 func (p *Paired) notJudgedKind() string {
@@ -526,7 +548,7 @@ func (p *Paired) notJudgedKind() string {
 		return positionTooFew
 	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
 		return positionTooFewResamples
-	case p.Method == "paired_resamples" && notCalibrated(p.Metric, p.Kind):
+	case p.Method == "point_difference" || p.Method == "paired_resamples" && NotCalibrated(p.Metric, p.Kind):
 		return positionNotCalibrated
 	}
 	return ""
@@ -539,7 +561,7 @@ func (p *Paired) notJudgedKind() string {
 // (BoyceCoverage), and the partial ROC ratio's between two extents of one
 // model (PartialROCExtentCoverage; between two models they reach 95%
 // from about 100 common test points and are judged).
-func notCalibrated(metric string, kind PairKind) bool {
+func NotCalibrated(metric string, kind PairKind) bool {
 	return metric == MetricKeyBoyce || (kind == PairedKindExtent && isPartialROCKey(metric))
 }
 
@@ -607,6 +629,28 @@ func coverageWhere(key string) string {
 // published P or interval (README "The published partial ROC bootstrap").
 const PublishedPSize = "42% of studies of 40 test records and 19% of 90, at E = 0.05"
 
+// Interval returns p's SE and 95% interval; ok is false (and the three
+// 0) when p has none: a point_difference or an undefined difference.
+func (p *Paired) Interval() (se, low, high float64, ok bool) {
+	if p.SE == nil || p.Low == nil || p.High == nil {
+		return 0, 0, 0, false
+	}
+	return *p.SE, *p.Low, *p.High, true
+}
+
+// Interval returns d's 95% interval; ok is false (and both 0) when d has
+// none (see ExtentDifference.Low).
+func (d *ExtentDifference) Interval() (low, high float64, ok bool) {
+	if d.Low == nil || d.High == nil {
+		return 0, 0, false
+	}
+	return *d.Low, *d.High, true
+}
+
+// Float returns a pointer to a copy of v, for the optional numbers of
+// Paired and ExtentDifference.
+func Float(v float64) *float64 { return &v }
+
 // Formed is the number of paired resamples that formed the difference
 // (Resamples - NotFormed).
 func (p *Paired) Formed() int { return p.Resamples - p.NotFormed }
@@ -627,14 +671,16 @@ func (p *Paired) minPoints() int { return minCommonPoints(p.Method, p.Kind, p.Me
 
 // minCommonPoints is the fewest common test points a paired difference of
 // method, kind and metric (a MetricInfo key) is judged on:
-// MinResampledPoints for a percentile interval of the paired resamples,
-// MinPairedPoints for the others, and for an omission rate between two
+// MinResampledPoints for a percentile interval of the paired resamples
+// and for a point_difference (which stands for one: the same cut-off as
+// before those differences lost their intervals), MinPairedPoints for
+// the others, and for an omission rate between two
 // extents of one model, whose difference is 0 in every resample (both
 // sides compare each common test point with the model's same threshold,
 // fixed from its training points whatever the extent), so that no
 // interval is to be calibrated.
 func minCommonPoints(method string, kind PairKind, metric string) int {
-	if method == "paired_resamples" && !(kind == PairedKindExtent && strings.HasPrefix(metric, "omission_")) {
+	if (method == "paired_resamples" || method == "point_difference") && !(kind == PairedKindExtent && strings.HasPrefix(metric, "omission_")) {
 		return MinResampledPoints
 	}
 	return MinPairedPoints

@@ -113,7 +113,7 @@ func TestOmissionRankingWords(t *testing.T) {
 			// Worked by hand: good omits 0.1 more, interval wholly above 0,
 			// on more common test points than the resamples' cut-off.
 			p.Defined, p.CommonPoints, p.Resamples, p.NotFormed, p.NotJudged = true, 40, r.Settings.Iterations, 0, ""
-			p.Diff, p.Low, p.High = 0.1, 0.05, 0.15
+			p.Diff, p.Low, p.High = 0.1, Float(0.05), Float(0.15)
 		}
 	}
 	if omission == "" {

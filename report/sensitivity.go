@@ -267,9 +267,13 @@ type ExtentDifference struct {
 	CommonPoints int     `json:"common_points"`
 	Defined      bool    `json:"defined"`
 	Diff         float64 `json:"diff"`
-	Low          float64 `json:"ci_low"`
-	High         float64 `json:"ci_high"`
-	// Method is "placements", "paired_resamples" or "exact".
+	// Low and High are Diff's 95% interval (Diff itself for an exact
+	// difference), absent when it has none (a point_difference, or an
+	// undefined difference; see Paired).
+	Low  *float64 `json:"ci_low,omitempty"`
+	High *float64 `json:"ci_high,omitempty"`
+	// Method is "placements", "paired_resamples", "point_difference" or
+	// "exact".
 	Method string `json:"method"`
 	// TestSetShift is how much the change of test set moved the score
 	// beyond Diff (0 when both extents hold the same test points).

@@ -87,10 +87,11 @@ type golden struct {
 		Verdict       Judgement
 		Largest       int
 		Diffs         []struct {
-			Extent          string
-			Defined         bool
-			Diff, Low, High float64
-			Position        string
+			Extent    string
+			Defined   bool
+			Diff      float64
+			Low, High *float64 // null for a point_difference
+			Position  string
 		}
 	} `json:"model_verdicts"`
 	Verdicts []struct {
@@ -257,10 +258,14 @@ func TestVerdictsAgainstGolden(t *testing.T) {
 					t.Errorf("difference %d: %s defined %v %s, golden %s %v %s", k, d.Extent, d.Defined, d.Position, wd.Extent, wd.Defined, wd.Position)
 				}
 				near(t, "diff", d.Diff, wd.Diff, 1e-12)
-				near(t, "low", d.Low, wd.Low, 1e-12)
-				near(t, "high", d.High, wd.High, 1e-12)
+				if (d.Low == nil) != (wd.Low == nil) || (d.High == nil) != (wd.High == nil) {
+					t.Errorf("difference %d on %s: interval %v..%v, golden %v..%v (nil: none)", k, d.Extent, d.Low, d.High, wd.Low, wd.High)
+				} else if d.Low != nil {
+					near(t, "low", *d.Low, *wd.Low, 1e-12)
+					near(t, "high", *d.High, *wd.High, 1e-12)
+				}
 			}
-			described := notCalibrated(mv.Metric, PairedKindExtent) // the Boyce index, a partial ROC ratio
+			described := NotCalibrated(mv.Metric, PairedKindExtent) // the Boyce index, a partial ROC ratio
 			if described && !strings.Contains(mv.Sentence, "described, not judged") {
 				t.Errorf("sentence %q does not say the %s is not judged", mv.Sentence, mv.Metric)
 			} else if !described && (mv.Sentence == "" || !strings.Contains(mv.Sentence, string(mv.Verdict))) {
@@ -655,7 +660,7 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 			for i := range r.Paired {
 				p := &r.Paired[i]
 				if p.Metric == "partial_roc_e0.05" && p.Kind == PairedKindExtent && p.Model == "good" {
-					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
+					p.Defined, p.Diff, p.Low, p.High = false, 0, Float(0), Float(0)
 				}
 			}
 		}, func(t *testing.T, r *Results, err error) {

@@ -48,7 +48,7 @@ func analyzed(t *testing.T, r *Results) *Sensitivity {
 // are judged once they rest on enough points; no other number changes.
 func liftResampled(r *Results) *Results {
 	for i := range r.Paired {
-		if p := &r.Paired[i]; p.Method == "paired_resamples" && p.CommonPoints < MinResampledPoints {
+		if p := &r.Paired[i]; (p.Method == "paired_resamples" || p.Method == "point_difference") && p.CommonPoints < MinResampledPoints {
 			p.CommonPoints = MinResampledPoints
 		}
 	}
@@ -83,7 +83,7 @@ func TestVerdictSentences(t *testing.T) {
 		{name: "undefined on one extent, every other difference inside",
 			build: func(r *Results) {
 				setPaired(r, "omission_minimum_training_presence", PairedKindExtent, "good", "hull", func(p *Paired) {
-					p.Defined, p.Diff, p.Low, p.High = false, 0, 0, 0
+					p.Defined, p.Diff, p.Low, p.High = false, 0, Float(0), Float(0)
 				})
 			},
 			metric: "omission_minimum_training_presence", model: "good", verdict: JudgementUndetermined,
@@ -93,10 +93,10 @@ func TestVerdictSentences(t *testing.T) {
 			build: func(r *Results) {
 				for i := range r.Paired {
 					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
-						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+						p.Diff, p.Low, p.High = 0.005, Float(-0.01), Float(0.015)
 					}
 				}
-				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.0201, 0.0399 })
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, Float(0.0201), Float(0.0399) })
 			},
 			metric: "auc", model: "good", verdict: JudgementSensitive,
 			want: []string{"+0.030 on whole (95% interval +0.0201 to +0.040)"}},
@@ -104,10 +104,10 @@ func TestVerdictSentences(t *testing.T) {
 			build: func(r *Results) {
 				for i := range r.Paired {
 					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
-						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+						p.Diff, p.Low, p.High = 0.005, Float(-0.01), Float(0.015)
 					}
 				}
-				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, 0.02, 0.04 })
+				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.03, Float(0.02), Float(0.04) })
 			},
 			metric: "auc", model: "good", verdict: JudgementUndetermined,
 			// An interval touching the tolerance straddles it: too wide
@@ -118,11 +118,11 @@ func TestVerdictSentences(t *testing.T) {
 			build: func(r *Results) {
 				for i := range r.Paired {
 					if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
-						p.Diff, p.Low, p.High = 0.005, -0.01, 0.015
+						p.Diff, p.Low, p.High = 0.005, Float(-0.01), Float(0.015)
 					}
 				}
 				setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) {
-					p.Diff, p.Low, p.High, p.CommonPoints = 0.03, -0.05, 0.11, MinPairedPoints-1
+					p.Diff, p.Low, p.High, p.CommonPoints = 0.03, Float(-0.05), Float(0.11), MinPairedPoints-1
 				})
 			},
 			metric: "auc", model: "good", verdict: JudgementUndetermined,
@@ -149,7 +149,7 @@ func TestVerdictSentences(t *testing.T) {
 			if mv.Largest >= 0 {
 				d := mv.Diffs[mv.Largest]
 				if m := intervalRe.FindStringSubmatch(mv.Sentence); m != nil {
-					for k, v := range []float64{d.Low, d.High} {
+					for k, v := range []float64{(*d.Low), (*d.High)} {
 						p, err := strconv.ParseFloat(m[k+1], 64)
 						if err != nil {
 							t.Fatal(err)
@@ -209,13 +209,13 @@ func TestAboveNullBorderline(t *testing.T) {
 			r := withNull(t)
 			for i := range r.Paired {
 				if r.Paired[i].Kind == PairedKindNull {
-					r.Paired[i].Low = 0.06
+					r.Paired[i].Low = Float(0.06)
 				}
 			}
 			r.Paired = append(r.Paired, nullPaired(r)...)
 			for i := range r.Paired {
 				if p := &r.Paired[i]; p.Kind == PairedKindNull && p.Extent == "base" {
-					p.Low = c.low
+					p.Low = Float(c.low)
 				}
 			}
 			s := analyzed(t, r)
@@ -306,7 +306,7 @@ func nullPaired(r *Results) []Paired {
 			continue
 		}
 		out = append(out, Paired{Metric: "auc", Kind: PairedKindNull, Model: "good", Extent: sc.Extent, OtherModel: DistanceNullName, OtherExtent: sc.Extent,
-			CommonPoints: sc.TestPoints, Method: "placements", Defined: true, A: 0.9, B: 0.8, Diff: 0.1, SE: 0.02, Low: 0.06, High: 0.14})
+			CommonPoints: sc.TestPoints, Method: "placements", Defined: true, A: 0.9, B: 0.8, Diff: 0.1, SE: Float(0.02), Low: Float(0.06), High: Float(0.14)})
 	}
 	return out
 }
@@ -336,7 +336,7 @@ func TestReviewerNulls(t *testing.T) {
 				}
 			}
 			r.Paired = append(r.Paired, nullPaired(r)...)
-			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.Low = -0.01 })
+			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) { p.Low = Float(-0.01) })
 			analyzed(t, r)
 			rv := reviewerNullText(r.Sensitivity)
 			checkWords(t, "reply", rv, c.want, c.notWant)
@@ -433,7 +433,7 @@ func TestMethodsTextSituations(t *testing.T) {
 				// described, not judged (PartialROCExtentCoverage): said
 				// with the tolerances, not among the undetermined.
 				"The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95% coverage between nested extents (" + PartialROCExtentCoverage + " in our simulation check at E = 0.05;",
-				"and we say only how many exceed our tolerance of ±0.05."},
+				"so no verdict rests on them, we give them no interval, and we say only how many exceed our tolerance of ±0.05."},
 			notWant: []string{"For the partial ROC ratio at E = 0.05 and the partial ROC ratio at E = 0.1 the test records cannot tell", "on most", "fixed in advance", "alternative evaluation extents", "28,200–231,000 km²", "partial ROC ratio, E = 0.05,", "the base extent, base,"}},
 		{name: "no extent holds every test point",
 			build: func(r *Results) {
@@ -563,7 +563,7 @@ func TestFewTestPoints(t *testing.T) {
 		if p := &r.Paired[i]; p.Model == "good" || p.OtherModel == "good" {
 			p.CommonPoints = 3
 			if p.Metric == "auc" && p.Kind == PairedKindExtent {
-				p.Diff, p.Low, p.High = 0.1, 0.1, 0.1 // zero width: every point moved alike
+				p.Diff, p.Low, p.High = 0.1, Float(0.1), Float(0.1) // zero width: every point moved alike
 			}
 		}
 	}
@@ -1071,7 +1071,7 @@ func TestTooFewAllZero(t *testing.T) {
 	const metric = "omission_minimum_training_presence"
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Diff, p.Low, p.High = 0, 0, 0
+			p.Diff, p.Low, p.High = 0, Float(0), Float(0)
 		}
 	}
 	if setPaired(r, metric, PairedKindExtent, "good", "hull", func(p *Paired) { p.CommonPoints = 6 }) != 1 {
@@ -1093,7 +1093,7 @@ func TestIdenticalModels(t *testing.T) {
 	r := loadSample(t)
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindModel && p.Model == "good" && p.OtherModel == "truncated" {
-			p.Diff, p.Low, p.High, p.SE = 0, 0, 0, 0
+			p.Diff, p.Low, p.High, p.SE = 0, Float(0), Float(0), Float(0)
 		}
 	}
 	s := analyzed(t, r)
@@ -1317,7 +1317,7 @@ func TestModelSameAsNull(t *testing.T) {
 	r := withNull(t)
 	ps := nullPaired(r)
 	for i := range ps {
-		ps[i].A, ps[i].B, ps[i].Diff, ps[i].SE, ps[i].Low, ps[i].High = 0.8, 0.8, 0, 0, 0, 0
+		ps[i].A, ps[i].B, ps[i].Diff, ps[i].SE, ps[i].Low, ps[i].High = 0.8, 0.8, 0, Float(0), Float(0), Float(0)
 	}
 	r.Paired = append(r.Paired, ps...)
 	s := analyzed(t, r)
@@ -1481,11 +1481,11 @@ func TestUndeterminedSaysWhere(t *testing.T) {
 	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Defined, p.Diff, p.Low, p.High = true, 0.01, -0.02, 0.04
+			p.Defined, p.Diff, p.Low, p.High = true, 0.01, Float(-0.02), Float(0.04)
 		}
 	}
-	setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, -0.08, 0.03 })
-	setPaired(r, key, PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, 0.005, 0.15 })
+	setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Diff, p.Low, p.High = -0.05, Float(-0.08), Float(0.03) })
+	setPaired(r, key, PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.02, Float(0.005), Float(0.15) })
 	s := analyzed(t, r)
 	mv := s.findModelVerdict(key, "good")
 	if mv.Verdict != JudgementUndetermined {
@@ -1551,7 +1551,7 @@ func TestReferenceExtentInPlaceOfBase(t *testing.T) {
 func TestNoCommonPointsIsNotUndefined(t *testing.T) {
 	r := loadSample(t)
 	setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
-		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = false, 0, 0, 0, 0
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = false, 0, 0, Float(0), Float(0)
 	})
 	s := analyzed(t, r)
 	mv := s.findModelVerdict("auc", "good")
@@ -1867,7 +1867,7 @@ func TestOneTestPointSingular(t *testing.T) {
 	checkWords(t, "test point text", testPointText(s), []string{"1 test point on each"}, []string{"points"})
 	checkWords(t, "chain clause", fewPointsClause(1, true), []string{"as few as 1 test point, fewer than the 10"}, []string{"points,"})
 	mv := &ModelVerdict{Verdict: JudgementUndetermined, Base: "base", Tolerance: 0.05, Largest: 0,
-		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: 0.004, High: 0.004, Position: positionTooFew}}}
+		Diffs: []ExtentDifference{{Extent: "hull", Defined: true, CommonPoints: 1, Diff: 0.004, Low: Float(0.004), High: Float(0.004), Position: positionTooFew}}}
 	checkWords(t, "verdict phrase", verdictPhrase(mv), []string{"on hull, not judged, too few common test points: 1, our cut-off 10"}, []string{"1 common test points", "interval"})
 	checkWords(t, "all extents", allExtents(1), []string{"the 1 extent"}, []string{"all"})
 	checkWords(t, "all extents", allExtents(13), []string{"all 13 extents"}, nil)
@@ -2129,7 +2129,7 @@ func TestAboveNullSkillNotShown(t *testing.T) {
 			}
 			r.Paired = append(r.Paired, nullPaired(r)...)
 			setPaired(r, "auc", PairedKindNull, "good", "base", func(p *Paired) {
-				p.A, p.B, p.Diff, p.Low, p.High = mean, mean-0.12, 0.12, 0.05, 0.19
+				p.A, p.B, p.Diff, p.Low, p.High = mean, mean-0.12, 0.12, Float(0.05), Float(0.19)
 			})
 			s := analyzed(t, r)
 			var an *AboveNull

@@ -44,16 +44,16 @@ func TestCheckShape(t *testing.T) {
 		name, text, want string
 		top              bool
 	}{
-		{"twice", `{"schema_version": 5, "seed": 1, "seed": 2}`, "seed", false},
-		{"wrong kind", `{"schema_version": 5, "scores": [{"auc": "0.8"}]}`, "scores[0].auc", false},
-		{"null", `{"schema_version": 5, "scores": [{"auc": null}]}`, "scores[0].auc", false},
-		{"nan", `{"schema_version": 5, "scores": [{"auc": NaN}]}`, "JSON has no NaN", false},
-		{"trailing", `{"schema_version": 5} {}`, "more JSON follows", false},
-		{"deep", `{"schema_version": 5, "x_note": ` + strings.Repeat("[", 40) + strings.Repeat("]", 40) + `}`, "nested more than", false},
+		{"twice", `{"schema_version": 6, "seed": 1, "seed": 2}`, "seed", false},
+		{"wrong kind", `{"schema_version": 6, "scores": [{"auc": "0.8"}]}`, "scores[0].auc", false},
+		{"null", `{"schema_version": 6, "scores": [{"auc": null}]}`, "scores[0].auc", false},
+		{"nan", `{"schema_version": 6, "scores": [{"auc": NaN}]}`, "JSON has no NaN", false},
+		{"trailing", `{"schema_version": 6} {}`, "more JSON follows", false},
+		{"deep", `{"schema_version": 6, "x_note": ` + strings.Repeat("[", 40) + strings.Repeat("]", 40) + `}`, "nested more than", false},
 		{"array", `[1, 2]`, "the top level", true},
-		{"scored without its counts", `{"schema_version": 5, "scores": [{"model": "m", "extent": "base", "scored": true, "auc_unweighted": 0.7, "auc_se": 0.01, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3}]}`,
+		{"scored without its counts", `{"schema_version": 6, "scores": [{"model": "m", "extent": "base", "scored": true, "auc_unweighted": 0.7, "auc_se": 0.01, "cells": 4, "area_km2": 1, "test_points": 3, "train_points": 3}]}`,
 			"scores[0].test_points_outside is missing (model m, extent base)", false},
-		{"missing at the top level", `{"schema_version": 5}`, "software is missing", false},
+		{"missing at the top level", `{"schema_version": 6}`, "software is missing", false},
 	} {
 		err := CheckShape([]byte(c.text))
 		if err == nil || !strings.Contains(err.Error(), c.want) {

@@ -202,8 +202,26 @@ func (v *validator) paired(ps []Paired) {
 		}
 		switch p.Method {
 		case "placements", "paired_resamples":
+			// A defined difference of these methods has its SE and
+			// interval: one deleted would otherwise read as none.
+			for _, x := range []struct {
+				name string
+				v    *float64
+			}{{"se", p.SE}, {"ci_low", p.Low}, {"ci_high", p.High}} {
+				if p.Defined && x.v == nil {
+					v.fail(at+"."+x.name, "is missing from a defined difference of method %s", p.Method)
+				}
+			}
+		case "point_difference":
+			// Described, not judged: no interval, no resamples.
+			if p.SE != nil || p.Low != nil || p.High != nil || p.Resamples != 0 {
+				v.fail(at, "a point_difference has no se, ci_low, ci_high or resamples")
+			}
+			if !NotCalibrated(p.Metric, p.Kind) {
+				v.fail(at+".method", "point_difference is the method of the differences described, not judged (the Boyce index's, and the partial ROC ratio's between extents), not of %s of kind %s", p.Metric, p.Kind)
+			}
 		default:
-			v.fail(at+".method", "%q is not placements or paired_resamples", p.Method)
+			v.fail(at+".method", "%q is not placements, paired_resamples or point_difference", p.Method)
 		}
 		v.nonNegInt(at+".common_points", int64(p.CommonPoints))
 		v.nonNegInt(at+".resamples", int64(p.Resamples))
@@ -211,10 +229,20 @@ func (v *validator) paired(ps []Paired) {
 		for _, x := range []struct {
 			name string
 			v    float64
-		}{{"a", p.A}, {"b", p.B}, {"diff", p.Diff}, {"ci_low", p.Low}, {"ci_high", p.High}, {"test_set_shift", p.TestSetShift}} {
+		}{{"a", p.A}, {"b", p.B}, {"diff", p.Diff}, {"test_set_shift", p.TestSetShift}} {
 			v.finite(at+"."+x.name, x.v)
 		}
-		v.nonNeg(at+".se", p.SE)
+		for _, x := range []struct {
+			name string
+			v    *float64
+		}{{"ci_low", p.Low}, {"ci_high", p.High}} {
+			if x.v != nil {
+				v.finite(at+"."+x.name, *x.v)
+			}
+		}
+		if p.SE != nil {
+			v.nonNeg(at+".se", *p.SE)
+		}
 	}
 }
 

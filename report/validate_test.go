@@ -100,10 +100,10 @@ func TestValidateRefuses(t *testing.T) {
 		}, "partial_roc[0].p_random: 0.3 is not (1 + k) / (1 + 3)"},
 		{"negative random draws", func(r *Results) { firstScored(r).PartialROC[0].RandomFormed = -3 }, "partial_roc[0].random_draws_formed: -3 is negative"},
 		// Accepted before; found by editing results.json at random.
-		{"paired negative SE", func(r *Results) { r.Paired[0].SE = -0.1 }, ".se: -0.1"},
+		{"paired negative SE", func(r *Results) { r.Paired[0].SE = Float(-0.1) }, ".se: -0.1"},
 		{"paired negative resamples", func(r *Results) { r.Paired[0].Resamples = -4 }, ".resamples: -4"},
 		{"paired more not formed than drawn", func(r *Results) { p := &r.Paired[0]; p.NotFormed = p.Resamples + 1 }, ".resamples_not_formed"},
-		{"paired unknown method", func(r *Results) { r.Paired[0].Method = "guess" }, `.method: "guess" is not placements or paired_resamples`},
+		{"paired unknown method", func(r *Results) { r.Paired[0].Method = "guess" }, `.method: "guess" is not placements, paired_resamples or point_difference`},
 		{"paired unknown kind", func(r *Results) { r.Paired[0].Kind = "other" }, `.kind: "other" is not extent`},
 		{"paired infinite difference", func(r *Results) { r.Paired[0].Diff = math.Inf(1) }, ".diff"},
 		{"scored point off the grid", func(r *Results) {

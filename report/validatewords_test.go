@@ -33,7 +33,7 @@ func TestValidateCutsLongNames(t *testing.T) {
 			t.Errorf("%s: %d bytes: %.300v", name, len(errText(err)), err)
 		}
 	}
-	_, err := Decode("results.json", []byte(`{"schema_version": 5, "`+long+`": 1, "`+long+`": 2}`))
+	_, err := Decode("results.json", []byte(`{"schema_version": 6, "`+long+`": 1, "`+long+`": 2}`))
 	if err == nil || len(err.Error()) > 400 || !strings.Contains(err.Error(), "is given twice") {
 		t.Errorf("a long key twice: %d bytes: %.300v", len(errText(err)), err)
 	}

@@ -106,8 +106,8 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 		w, ok2, _, _, _, _ := metricValue(m, osc)
 		if ok1 && ok2 {
 			d.Defined, d.Method = true, "exact"
-			d.Diff, d.Low, d.High = v-w, v-w, v-w
-			d.Position = position(d.Low, d.High, m.Tolerance)
+			d.Diff, d.Low, d.High = v-w, Float(v-w), Float(v-w)
+			d.Position = position(v-w, v-w, m.Tolerance)
 		}
 		return d
 	}
@@ -120,8 +120,11 @@ func (a *analysis) difference(m MetricInfo, kind PairKind, model, ext, other, ot
 		return d
 	}
 	d.Defined = true
-	d.Diff, d.Low, d.High, d.TestSetShift = p.Diff, p.Low, p.High, p.TestSetShift
-	d.Position = position(d.Low, d.High, m.Tolerance)
+	d.Diff, d.TestSetShift = p.Diff, p.TestSetShift
+	if _, lo, hi, ok := p.Interval(); ok {
+		d.Low, d.High = Float(lo), Float(hi)
+		d.Position = position(lo, hi, m.Tolerance)
+	}
 	if k := p.notJudgedKind(); k != "" {
 		d.Position, d.NotJudged = k, p.NotJudgedReason()
 	}
@@ -299,7 +302,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		// the test points are not the reason.
 		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
 			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin)
-	case big.Diff == 0 && big.Low == 0 && big.High == 0:
+	case big.zero():
 		// Every difference is 0: no extent is "the largest". Undetermined
 		// for the differences on too few test points, or for an interval
 		// that straddles the tolerance around a difference of 0 (named,
@@ -428,7 +431,15 @@ func differenceText(d ExtentDifference, tol float64) string {
 		// A description only: its interval is no basis for inference.
 		return fmt.Sprintf("%s on %s, not judged (%s)", signedSmall(d.Diff), d.Extent, d.why())
 	}
-	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signedSmall(d.Diff), d.Extent, signedSmall(d.Low, tol, -tol), signedSmall(d.High, tol, -tol))
+	lo, hi, _ := d.Interval() // judged: it has one
+	return fmt.Sprintf("%s on %s (95%% interval %s to %s)", signedSmall(d.Diff), d.Extent, signedSmall(lo, tol, -tol), signedSmall(hi, tol, -tol))
+}
+
+// zero tells whether d is exactly 0 with an interval of exactly 0 (or
+// no interval).
+func (d *ExtentDifference) zero() bool {
+	lo, hi, _ := d.Interval()
+	return d.Diff == 0 && lo == 0 && hi == 0
 }
 
 // undefinedText says where no difference from the base could be formed
@@ -468,7 +479,10 @@ func (a *analysis) undefinedText(m MetricInfo, model string, mv ModelVerdict) st
 func straddleText(ds []ExtentDifference, big ExtentDifference, tol float64) string {
 	n := 0
 	var far *ExtentDifference
-	reach := func(d *ExtentDifference) float64 { return math.Max(math.Abs(d.Low), math.Abs(d.High)) }
+	reach := func(d *ExtentDifference) float64 {
+		lo, hi, _ := d.Interval()
+		return math.Max(math.Abs(lo), math.Abs(hi))
+	}
 	for i := range ds {
 		if d := &ds[i]; d.Defined && d.Position == "overlapping" {
 			n++
@@ -708,7 +722,8 @@ func (a *analysis) rankings(m MetricInfo) []ModelRanking {
 					continue
 				}
 				r.Extents++
-				up, down := d.Low > 0, d.High < 0
+				lo, hi, _ := d.Interval()
+				up, down := lo > 0, hi < 0
 				if !m.HigherIsBetter {
 					up, down = down, up
 				}
@@ -860,7 +875,7 @@ func (rk ModelRanking) identical() bool {
 		if !d.Defined || d.notJudged() {
 			continue
 		}
-		if d.Diff != 0 || d.Low != 0 || d.High != 0 {
+		if !d.zero() {
 			return false
 		}
 		n++

@@ -28,7 +28,7 @@ func TestSensitiveVerdictCitesJudged(t *testing.T) {
 	r := loadSample(t)
 	if setPaired(r, "auc", PairedKindExtent, "good", "points_b25", func(p *Paired) {
 		p.CommonPoints = 6
-		p.Diff, p.Low, p.High = -0.3, -0.35, -0.25
+		p.Diff, p.Low, p.High = -0.3, Float(-0.35), Float(-0.25)
 	}) != 1 {
 		t.Fatal("no record of good on points_b25")
 	}
@@ -111,10 +111,10 @@ func TestAllZeroStraddleNotTooFew(t *testing.T) {
 	r.Settings.ToleranceOmission = 0.1
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == key && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, MinResampledPoints, 0, 0, 0
+			p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, MinResampledPoints, 0, Float(0), Float(0)
 		}
 	}
-	if setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = -0.563 }) != 1 {
+	if setPaired(r, key, PairedKindExtent, "good", "hull", func(p *Paired) { p.Low = Float(-0.563) }) != 1 {
 		t.Fatal("no omission record of good on hull")
 	}
 	s := analyzed(t, r)
@@ -200,7 +200,7 @@ func TestBoyceUndefinedSaysWhy(t *testing.T) {
 func TestBoyceDescribedNotJudged(t *testing.T) {
 	r := liftResampled(loadSample(t))
 	setPaired(r, MetricKeyBoyce, PairedKindExtent, "good", "whole", func(p *Paired) {
-		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, -0.5, -0.7, -0.3
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, -0.5, Float(-0.7), Float(-0.3)
 	})
 	s := analyzed(t, r)
 	mv := s.findModelVerdict(MetricKeyBoyce, "good")
@@ -264,7 +264,7 @@ func TestPartialROCExtentsDescribed(t *testing.T) {
 	r := liftResampled(loadSample(t))
 	key := MetricKeyPartialROC(r.Settings.E[0])
 	if n := setPaired(r, key, PairedKindExtent, "good", "whole", func(p *Paired) {
-		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, 0.3, 0.2, 0.4
+		p.Defined, p.CommonPoints, p.Diff, p.Low, p.High = true, 30, 0.3, Float(0.2), Float(0.4)
 	}); n != 1 {
 		t.Fatalf("%d records of %s good on whole", n, key)
 	}
@@ -274,15 +274,7 @@ func TestPartialROCExtentsDescribed(t *testing.T) {
 		t.Fatalf("verdict: %+v", mv)
 	}
 	// The description's numbers, from the differences.
-	defined, beyond := 0, 0
-	for _, d := range mv.Diffs {
-		if d.Defined {
-			defined++
-			if math.Abs(d.Diff) > mv.Tolerance {
-				beyond++
-			}
-		}
-	}
+	defined, beyond := beyondTolerance(*mv)
 	big := mv.Diffs[mv.Largest]
 	if beyond < 2 || defined < 2 {
 		t.Fatalf("%d of %d differences beyond the tolerance: the test wants several", beyond, defined)
@@ -501,7 +493,7 @@ func TestOneOtherExtentWords(t *testing.T) {
 	checkWords(t, "Boyce", mv.Sentence, []string{"its one difference from base, +0.013 on whole, lies within ±0.1."}, []string{"0 of 1", "the largest"})
 
 	r := oneOther()
-	if setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.004, 0.001, 0.007 }) != 1 {
+	if setPaired(r, "auc", PairedKindExtent, "good", "whole", func(p *Paired) { p.Diff, p.Low, p.High = 0.004, Float(0.001), Float(0.007) }) != 1 {
 		t.Fatal("no record of good on whole")
 	}
 	mv = analyzed(t, r).findModelVerdict("auc", "good")
@@ -525,7 +517,7 @@ func TestRobustWideRangeHeadline(t *testing.T) {
 	n := 0
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == "auc" && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Diff, p.Low, p.High = 0.002, -0.005, 0.009
+			p.Diff, p.Low, p.High = 0.002, Float(-0.005), Float(0.009)
 			n++
 		}
 	}

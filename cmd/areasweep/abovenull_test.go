@@ -53,7 +53,7 @@ func TestModelAboveNullOfItsCopy(t *testing.T) {
 			if !p.Defined && p.Metric == "auc" && p.CommonPoints >= 2 {
 				t.Errorf("%s on %s: AUC minus null undefined", p.Model, p.Extent)
 			}
-			if p.Defined && (p.Diff != 0 || p.SE != 0 || p.Low != 0 || p.High != 0 || p.A != p.B) {
+			if p.Defined && (p.Diff != 0 || val(p.SE) != 0 || val(p.Low) != 0 || val(p.High) != 0 || p.A != p.B) {
 				t.Errorf("%s minus null on %s, %s: %+v, want exactly 0", p.Model, p.Extent, p.Metric, p)
 			}
 		}

@@ -171,7 +171,7 @@ func TestTwoBatchesOnOneFolder(t *testing.T) {
 	table := filepath.Join(dir, "studies.csv")
 	body := "# region-buffers: 60\n# point-buffers: 40\n# hull-buffers: 0\n# e: 0.05\n" +
 		"id,model,occurrences,region,iterations\n" +
-		"slow,m=" + s.model + "," + s.occ + "," + s.region + ",60000\n" +
+		"slow,m=" + s.model + "," + s.occ + "," + s.region + ",500000\n" +
 		"quick,m=" + s.model + "," + s.occ + "," + s.region + ",30\n"
 	if err := os.WriteFile(table, []byte(body), 0o644); err != nil {
 		t.Fatal(err)

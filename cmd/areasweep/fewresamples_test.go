@@ -40,13 +40,17 @@ func TestDemoFewResamplesNotJudged(t *testing.T) {
 		for _, p := range r.Paired {
 			formed := p.Resamples - p.NotFormed
 			want := ""
+			described := p.Metric == report.MetricKeyBoyce || p.Kind == report.PairedKindExtent && strings.HasPrefix(p.Metric, "partial_roc_e")
+			if described != (p.Method == "point_difference") {
+				t.Errorf("--iterations %d: %s %s %s/%s: method %s", b, p.Metric, p.Kind, p.Model, p.Extent, p.Method)
+			}
 			switch {
 			case p.Defined && p.Method == "paired_resamples" && formed < 40:
 				want = fmt.Sprintf("too few resamples: %d formed, our cut-off 40", formed)
-			case p.Defined && p.Method == "paired_resamples" && p.Metric == report.MetricKeyBoyce:
-				// Never judged (report.BoyceCoverage).
+			case p.Defined && p.Metric == report.MetricKeyBoyce:
+				// Never judged (report.BoyceCoverage), whatever the resamples.
 				want = "the Boyce index's paired intervals fall short of their 95% coverage: " + report.BoyceCoverage + " in our simulation check"
-			case p.Defined && p.Method == "paired_resamples" && p.Kind == report.PairedKindExtent && strings.HasPrefix(p.Metric, "partial_roc_e"):
+			case p.Defined && described:
 				// Never judged between extents (report.PartialROCExtentCoverage).
 				want = "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + report.PartialROCExtentCoverage + " in our simulation check"
 				if e := strings.TrimPrefix(p.Metric, "partial_roc_e"); e != "0.05" {
@@ -94,8 +98,12 @@ func TestDemoFewResamplesNotJudged(t *testing.T) {
 			if mv.Verdict != report.JudgementUndetermined {
 				t.Errorf("--iterations 39: %s of %s is %s: %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
 			}
+			want := "too_few_resamples"
+			if report.NotCalibrated(mv.Metric, report.PairedKindExtent) {
+				want = "not_calibrated" // a point_difference: no resamples
+			}
 			for _, d := range mv.Diffs {
-				if d.Defined && d.Position != "too_few_resamples" {
+				if d.Defined && d.Position != want {
 					t.Errorf("--iterations 39: %s of %s on %s: position %s", mv.Metric, mv.Model, d.Extent, d.Position)
 				}
 			}

@@ -641,7 +641,7 @@ func checkE2EPaired(t *testing.T, st *e2eStudy, res *report.Results, same map[st
 		for _, c := range []struct {
 			name      string
 			got, want float64
-		}{{"a", p.A, w.A}, {"b", p.B, w.B}, {"diff", p.Diff, w.Diff}, {"se", p.SE, w.SE}, {"ci_low", p.Low, w.Low}, {"ci_high", p.High, w.High},
+		}{{"a", p.A, w.A}, {"b", p.B, w.B}, {"diff", p.Diff, w.Diff}, {"se", (*p.SE), w.SE}, {"ci_low", (*p.Low), w.Low}, {"ci_high", (*p.High), w.High},
 			{"test_set_shift", p.TestSetShift, w.TestSetShift}} {
 			if math.Abs(c.got-c.want) > 1e-9 {
 				t.Errorf("paired %s: %s %v, want %v (numpy on golden.py's placements, scipy norm.ppf)", k, c.name, c.got, c.want)
@@ -722,7 +722,7 @@ func checkE2EPaired(t *testing.T, st *e2eStudy, res *report.Results, same map[st
 			}
 			pos = append(pos, wp)
 			if d.Position != wp || d.Defined != w.Defined || d.CommonPoints != w.CommonPoints || d.Method != "placements" ||
-				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(d.Low-w.Low) > 1e-9 || math.Abs(d.High-w.High) > 1e-9 || math.Abs(d.TestSetShift-w.TestSetShift) > 1e-9) {
+				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(val(d.Low)-w.Low) > 1e-9 || math.Abs(val(d.High)-w.High) > 1e-9 || math.Abs(d.TestSetShift-w.TestSetShift) > 1e-9) {
 				t.Errorf("verdict %s: difference on %s %+v, want position %q common points %d diff %v interval %v..%v shift %v (golden.py paired_analysis)",
 					lab, d.Extent, d, wp, w.CommonPoints, w.Diff, w.Low, w.High, w.TestSetShift)
 			}
@@ -826,15 +826,15 @@ func checkE2EPaired(t *testing.T, st *e2eStudy, res *report.Results, same map[st
 				switch {
 				case d.Defined && d.Position == "too_few":
 					reading = "too_few"
-				case d.Defined && d.Low > 0:
+				case d.Defined && val(d.Low) > 0:
 					reading = "above"
-				case d.Defined && d.High < 0:
+				case d.Defined && val(d.High) < 0:
 					reading = "below"
 				case d.Defined:
 					reading = "not_above"
 				}
 			} else if d.Defined != w.Defined || d.CommonPoints != w.CommonPoints || d.Method != "placements" || (d.Position == "too_few") != (w.Reading == "too_few") ||
-				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(d.Low-w.Low) > 1e-9 || math.Abs(d.High-w.High) > 1e-9) {
+				w.Defined && (math.Abs(d.Diff-w.Diff) > 1e-9 || math.Abs(val(d.Low)-w.Low) > 1e-9 || math.Abs(val(d.High)-w.High) > 1e-9) {
 				t.Errorf("ranking %s on %s: %+v, want common points %d diff %v interval %v..%v reading %s (golden.py paired_analysis)",
 					lab, d.Extent, d, w.CommonPoints, w.Diff, w.Low, w.High, w.Reading)
 			}
@@ -944,4 +944,13 @@ func checkE2EBoyce(t *testing.T, lab string, b *report.Boyce, s e2eScore) {
 	if math.Abs(b.Index-s.Boyce.Index) > tol {
 		t.Errorf("%s: Boyce index %v, want %v within %v (scipy spearmanr on exact window areas)", lab, b.Index, s.Boyce.Index, tol)
 	}
+}
+
+// val is the number p points to, NaN when p is nil (a paired record's
+// optional SE and interval).
+func val(p *float64) float64 {
+	if p == nil {
+		return math.NaN()
+	}
+	return *p
 }

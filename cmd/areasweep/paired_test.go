@@ -115,13 +115,14 @@ func TestPairedAgainstRawCells(t *testing.T) {
 				ss += (x - m) * (x - m)
 			}
 			sd := math.Sqrt(ss / float64(len(d)*(len(d)-1)))
-			if math.Abs(p.Diff-m) > 1e-9 || math.Abs(p.SE-sd) > 1e-9 || math.Abs(p.Low-(m-metrics.T975(len(d)-1)*sd)) > 1e-9 {
-				t.Errorf("%s - %s: diff %.12f SE %.12f, raw cells %.12f %.12f", p.Extent, p.OtherExtent, p.Diff, p.SE, m, sd)
+			if math.Abs(p.Diff-m) > 1e-9 || math.Abs(val(p.SE)-sd) > 1e-9 || math.Abs(val(p.Low)-(m-metrics.T975(len(d)-1)*sd)) > 1e-9 {
+				t.Errorf("%s - %s: diff %.12f SE %.12f, raw cells %.12f %.12f", p.Extent, p.OtherExtent, p.Diff, val(p.SE), m, sd)
 			}
 			pairs++
 		case p.Kind == report.PairedKindModel && p.Model == "m" && p.OtherModel == "sq":
-			if p.Diff != 0 || p.SE != 0 || p.Defined != (p.CommonPoints >= 2) {
-				t.Errorf("m - sq on %s: %+v, want exactly 0 with SE 0", p.Extent, p)
+			// Defined: 0 with SE 0; undefined (one common point): no SE.
+			if p.Diff != 0 || p.Defined != (p.CommonPoints >= 2) || p.Defined && val(p.SE) != 0 || !p.Defined && p.SE != nil {
+				t.Errorf("m - sq on %s: %+v, want exactly 0 with SE 0 (none when undefined)", p.Extent, p)
 			}
 			pairs++
 		}

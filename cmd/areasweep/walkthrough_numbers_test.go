@@ -55,6 +55,7 @@ var wtUnchecked = []struct{ text, why string }{
 	{"at or above P10", "the threshold's name"},
 	{"reaches y = 1 early", "the corner of the ROC plot, not a result"},
 	{"their 95% coverage (see \"How often the 95% intervals cover\")", "the nominal level of the intervals and a section's title, not a result"},
+	{"their 95% coverage: see below", "the nominal level of the intervals, not a result"},
 	{"no calibrated test against 1 (see", "the ratio of a random ranking (1), not a result"},
 	{"SE is about 0.02", "a round description of every extent's SE (0.015 to 0.027 in the Key numbers table, whose cells are checked), not one value"},
 }
@@ -372,6 +373,18 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 		}
 		return wtInterval(d.diff, d.lo, d.hi)
 	}
+	// A described difference (a point_difference) has no interval: the
+	// cell gives the difference alone.
+	pointCell := func(metric, model, ext string) string {
+		if ext == "base" {
+			return "—"
+		}
+		d := diffOf(metric, model, ext)
+		if !d.ok {
+			return "(no defined difference in results.json)"
+		}
+		return wtSigned(d.diff)
+	}
 	aboveNull := func(metric, model string) int {
 		for i, a := range r.Sensitivity.AboveNull {
 			if a.Metric == metric && a.Model == model {
@@ -427,7 +440,7 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 			p := proc(sc("good", ext), e05)
 			return wt3(p.Ratio) + " (" + wt3(p.CILow) + "–" + wt3(p.CIHigh) + ")"
 		},
-		"ratio − base (95%)":                  func(ext string) string { return diffCell("partial_roc_e0.05", "good", ext) },
+		"ratio − base":                        func(ext string) string { return pointCell("partial_roc_e0.05", "good", ext) },
 		"share of test points missed at P10":  func(ext string) string { return wt3(th(sc("good", ext), p10).Omission) },
 		"share of the extent at or above MTP": func(ext string) string { return wt3(th(sc("good", ext), mtp).AreaFraction) },
 		"Boyce index":                         func(ext string) string { return wt3(sc("good", ext).Boyce.Index) },
@@ -645,7 +658,7 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 	pb, pw := proc(gb, e05), proc(gw, e05)
 	dpr := diffOf("partial_roc_e0.05", "good", "whole_raster")
 	frag(fmt.Sprintf("At E = %s the ratio of `good` is %s on `base` and %s on `whole_raster`, a paired difference of %s against a tolerance of ±%s.",
-		wtG(e05), wt3(pb.Ratio), wt3(pw.Ratio), wtInterval(dpr.diff, dpr.lo, dpr.hi), wtG(r.Settings.TolerancePartialROC)))
+		wtG(e05), wt3(pb.Ratio), wt3(pw.Ratio), wtSigned(dpr.diff), wtG(r.Settings.TolerancePartialROC)))
 	must(pb.PValue == 0, "the p-value of good's ratio on base is %g, not 'none of the resamples'", pb.PValue)
 	pv := "< " + wtG(1/float64(pb.Iterations))
 	frag(fmt.Sprintf("None of the %d resamples of its published bootstrap gives a ratio at or below 1, so its one-sided p-value is printed as \"%s\": %d resamples cannot resolve less.",
@@ -716,8 +729,8 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 		v := r.Sensitivity.ModelVerdicts[i]
 		must(strings.Contains(v.Sentence, "described, not judged"), "Boyce of coarse: %s", v.Sentence)
 		n, of := beyond(v)
-		frag(fmt.Sprintf("With only %d distinct values, the Boyce index of `coarse` jumps from %s on `base` to %s on `region_500km` (paired difference %s; its resamples run from %s to %s), and %d of its %d differences from `base` lie beyond ±%s",
-			run.coarseLevels, wt3(cb.Boyce.Index), wt3(cr.Boyce.Index), wtSigned(dcb.diff), wtSigned(dcb.lo), wtSigned(dcb.hi), n, of, wtG(v.Tolerance)))
+		frag(fmt.Sprintf("With only %d distinct values, the Boyce index of `coarse` jumps from %s on `base` to %s on `region_500km` (paired difference %s), and %d of its %d differences from `base` lie beyond ±%s",
+			run.coarseLevels, wt3(cb.Boyce.Index), wt3(cr.Boyce.Index), wtSigned(dcb.diff), n, of, wtG(v.Tolerance)))
 	}
 	if i := verdict("boyce", "good"); i >= 0 {
 		v := r.Sensitivity.ModelVerdicts[i]

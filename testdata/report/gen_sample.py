@@ -515,9 +515,9 @@ def compare(kind, ma, ea, mb, eb):
     for key, fa, fb in (("auc", A["F"], B["F"]), ("auc_unweighted", A["Fu"], B["Fu"])):
         d = fa[pa] - fb[pb]
         n = len(d)
+        # se, ci_low and ci_high only where defined (schema version 6).
         rec = {"metric": key, **head, "method": "placements", "defined": n >= 2, "a": 0, "b": 0,
-               "diff": 0, "se": 0, "ci_low": 0, "ci_high": 0, "resamples": 0,
-               "resamples_not_formed": 0, "test_set_shift": 0}
+               "diff": 0, "resamples": 0, "resamples_not_formed": 0, "test_set_shift": 0}
         if n >= 2:
             m = float(d.mean())
             se = float(np.sqrt(((d - m) ** 2).sum() / (n * (n - 1))))
@@ -541,9 +541,22 @@ def compare(kind, ma, ea, mb, eb):
                 diffs[k].append(ra[k] - rb[k])
     for k in va:
         ds = np.array(diffs[k])
+        if k == "boyce" or (kind == "extent" and k.startswith("partial_roc_e")):
+            # Described, not judged: the two scores on the common points
+            # and their difference, no interval (method point_difference).
+            ok = va[k] is not None and vb[k] is not None
+            rec = {"metric": k, **head, "method": "point_difference", "defined": ok, "a": 0, "b": 0,
+                   "diff": 0, "resamples": 0, "resamples_not_formed": 0, "test_set_shift": 0}
+            if ok:
+                diff = va[k] - vb[k]
+                rec.update(a=r12(va[k]), b=r12(vb[k]), diff=r12(diff))
+                if oa[k] is not None and ob[k] is not None:
+                    rec["test_set_shift"] = r12((oa[k] - ob[k]) - diff)
+            recs.append(rec)
+            continue
         ok = va[k] is not None and vb[k] is not None and len(ds) >= 2
         rec = {"metric": k, **head, "method": "paired_resamples", "defined": ok, "a": 0, "b": 0,
-               "diff": 0, "se": 0, "ci_low": 0, "ci_high": 0, "resamples": PAIRED_B,
+               "diff": 0, "resamples": PAIRED_B,
                "resamples_not_formed": PAIRED_B - len(ds), "test_set_shift": 0}
         if ok:
             diff = va[k] - vb[k]
@@ -594,7 +607,7 @@ counts = {"train": len(train), "test": len(test),
           "nodata": sum(q["status"] == "nodata" for q in points)}
 
 results = {
-    "schema_version": 5,
+    "schema_version": 6,
     "software": {"name": "areasweep", "version": "0.1.0-test"},
     "seed": 20240611,
     "settings": {"region_buffers_km": [50, 100, 200], "point_buffers_km": [25, 100, 400],

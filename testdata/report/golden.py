@@ -140,15 +140,20 @@ def difference(key, kind_metric, arg, kind, ma, ea, mb, eb):
     # resamples (partial ROC ratio, omission, Boyce index), except 10 for
     # an omission rate between two extents of one model (0 in every
     # resample: the model's thresholds do not depend on the extent).
-    resampled = p["method"] == "paired_resamples" and not (kind == "extent" and kind_metric == "omission")
+    # A point_difference (the Boyce index's, the partial ROC ratio's
+    # between extents) keeps the cut-off of the resamples it stands for.
+    resampled = p["method"] in ("paired_resamples", "point_difference") and not (kind == "extent" and kind_metric == "omission")
+    lo, hi = p.get("ci_low"), p.get("ci_high")
     if p["common_points"] < (30 if resampled else 10):
-        return p["diff"], p["ci_low"], p["ci_high"], "too_few"
-    if kind_metric == "boyce":
-        # Reported, never judged: the Boyce index's paired percentile
-        # intervals fall short of their coverage (areasweep's own
-        # simulation check, metrics/coverage_test.go; our rule).
-        return p["diff"], p["ci_low"], p["ci_high"], "not_calibrated"
-    return p["diff"], p["ci_low"], p["ci_high"], position(p["ci_low"], p["ci_high"], tol)
+        return p["diff"], lo, hi, "too_few"
+    if p["method"] == "point_difference":
+        # Reported, never judged, and without an interval: the Boyce
+        # index's paired percentile intervals, and the partial ROC
+        # ratio's between extents, fall short of their coverage
+        # (areasweep's own simulation check, metrics/coverage_test.go;
+        # our rule).
+        return p["diff"], lo, hi, "not_calibrated"
+    return p["diff"], lo, hi, position(lo, hi, tol)
 
 # ------------------------------------------------------------ spreads, slopes
 for key, kind, arg in metrics:

@@ -247,6 +247,13 @@
 #     the demo's E = 0.1 its not_judged_reason and sentences now add ",
 #     measured at E = 0.05, not at E = 0.1"; no number changed, scores.csv
 #     unchanged).
+#   - rewritten on 2026-12-05, session 13 (schema version 6: the Boyce
+#     index's differences and the partial ROC ratio's between extents are
+#     written as method point_difference, without se, ci_low, ci_high or
+#     resamples, since their intervals under-cover; an undefined paired
+#     difference leaves its se and interval out instead of writing 0; the
+#     Boyce index is left out of the paired resamples; every other number
+#     unchanged, scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -142,10 +142,11 @@ func scoresCSV(r *report.Results) []byte {
 		default:
 			continue
 		}
+		se, lo, hi, _ := p.Interval() // a model against a null is judged: it has one
 		for _, v := range []struct {
 			suffix string
 			v      float64
-		}{{"", p.Diff}, {"_se", p.SE}, {"_ci_low", p.Low}, {"_ci_high", p.High}} {
+		}{{"", p.Diff}, {"_se", se}, {"_ci_low", lo}, {"_ci_high", hi}} {
 			w.Write([]string{p.Model, p.Extent, string(ex.Kind), ftoa(ex.AreaKm2), strconv.Itoa(p.CommonPoints), metric + v.suffix, e, "", ftoa(v.v), report.RoleModel})
 		}
 	}

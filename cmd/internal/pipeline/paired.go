@@ -128,7 +128,9 @@ func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Ev
 			keys, om = append(keys, k), append(om, [2]int{i, j})
 		}
 	}
-	cmp, err := metrics.CompareThresholds(a, b, d, om)
+	// The Boyce index's differences are described, never judged
+	// (report.BoyceCoverage): its resamples are left out.
+	cmp, err := metrics.CompareWith(a, b, d, om, metrics.CompareOptions{BoyceUnresampled: true})
 	if err != nil {
 		return nil, err
 	}
@@ -150,7 +152,7 @@ func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Ev
 		p := rec(metric)
 		p.Method, p.Defined = "placements", iv.Defined
 		if iv.Defined {
-			p.A, p.B, p.Diff, p.SE, p.Low, p.High = comA, comB, iv.Diff, iv.SE, iv.Low, iv.High
+			p.A, p.B, p.Diff, p.SE, p.Low, p.High = comA, comB, iv.Diff, report.Float(iv.SE), report.Float(iv.Low), report.Float(iv.High)
 			p.TestSetShift = shift(ownA, ownB, iv.Diff)
 		}
 		p.NotJudged = p.NotJudgedReason()
@@ -160,12 +162,24 @@ func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Ev
 	place("auc_unweighted", cmp.AUCUnweighted, fa.AUCUnweighted, fb.AUCUnweighted, cmp.AUCUnweightedOn[0], cmp.AUCUnweightedOn[1])
 	res := func(metric string, r metrics.Resampled, ownA, ownB float64, ownOK bool) {
 		p := rec(metric)
-		p.Method, p.Defined = "paired_resamples", r.Defined
-		p.Resamples, p.NotFormed = r.Resamples, r.NotFormed
-		if r.Defined {
-			p.A, p.B, p.Diff, p.SE, p.Low, p.High = r.A, r.B, r.Diff, r.SD, r.Low, r.High
-			if ownOK {
-				p.TestSetShift = shift(ownA, ownB, r.Diff)
+		if report.NotCalibrated(metric, kind) {
+			// Described, not judged: the two scores on the common
+			// points and their difference, no interval (report.Paired).
+			p.Method, p.Defined = "point_difference", r.Scored
+			if p.Defined {
+				p.A, p.B, p.Diff = r.A, r.B, r.A-r.B
+				if ownOK {
+					p.TestSetShift = shift(ownA, ownB, p.Diff)
+				}
+			}
+		} else {
+			p.Method, p.Defined = "paired_resamples", r.Defined
+			p.Resamples, p.NotFormed = r.Resamples, r.NotFormed
+			if r.Defined {
+				p.A, p.B, p.Diff, p.SE, p.Low, p.High = r.A, r.B, r.Diff, report.Float(r.SD), report.Float(r.Low), report.Float(r.High)
+				if ownOK {
+					p.TestSetShift = shift(ownA, ownB, r.Diff)
+				}
 			}
 		}
 		p.NotJudged = p.NotJudgedReason()
