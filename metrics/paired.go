@@ -254,9 +254,10 @@ var useOwnMemo = true
 
 // ownMemo holds an evaluator's scores on the B resamples of one Draws
 // restricted to its own presences, flattened per resample: nE partial ROC
-// ratios (ok[r*nE+i]), nT omission rates, the Boyce index (boyceOK[r]) and
-// the number of presences drawn (n[r]). 8(nE+nT+1)+nE+9 bytes per
-// resample.
+// ratios (ok[r*nE+i]), nT omission rates, the Boyce index (boyceOK[r];
+// only withBoyce) and the number of presences drawn (n[r]).
+// 8(nE+nT+1)+nE+9 bytes per resample with the Boyce index, 8(nE+nT+1)+nE
+// without.
 type ownMemo struct {
 	d           Draws
 	ratio, om   []float64
@@ -287,7 +288,10 @@ func (e *Evaluator) ownResamples(d Draws, boyce bool) *ownMemo {
 	e.own = m
 	m.ratio, m.ok = make([]float64, d.B*nE), make([]bool, d.B*nE)
 	m.om = make([]float64, d.B*nT)
-	m.boyce, m.boyceOK, m.n = make([]float64, d.B), make([]bool, d.B), make([]int, d.B)
+	m.n = make([]int, d.B)
+	if boyce {
+		m.boyce, m.boyceOK = make([]float64, d.B), make([]bool, d.B)
+	}
 	rs := newResampler(d)
 	e.tab = rs.tab
 	gs := e.all
@@ -299,7 +303,10 @@ func (e *Evaluator) ownResamples(d Draws, boyce bool) *ownMemo {
 		copy(m.ratio[r*nE:], v.Ratio)
 		copy(m.ok[r*nE:], v.RatioOK)
 		copy(m.om[r*nT:], v.Omission)
-		m.boyce[r], m.boyceOK[r], m.n[r] = v.Boyce, v.BoyceOK, v.N
+		m.n[r] = v.N
+		if boyce {
+			m.boyce[r], m.boyceOK[r] = v.Boyce, v.BoyceOK
+		}
 	}
 	return m
 }
@@ -308,7 +315,10 @@ func (e *Evaluator) ownResamples(d Draws, boyce bool) *ownMemo {
 func (m *ownMemo) load(r, nE, nT int, v *Values) {
 	v.Ratio, v.RatioOK = m.ratio[r*nE:(r+1)*nE], m.ok[r*nE:(r+1)*nE]
 	v.Omission = m.om[r*nT : (r+1)*nT]
-	v.Boyce, v.BoyceOK, v.N = m.boyce[r], m.boyceOK[r], m.n[r]
+	v.Boyce, v.BoyceOK, v.N = 0, false, m.n[r]
+	if m.withBoyce {
+		v.Boyce, v.BoyceOK = m.boyce[r], m.boyceOK[r]
+	}
 }
 
 // evalScratch is the working memory of one eval call, reused across

@@ -105,6 +105,28 @@ func TestValidateRefuses(t *testing.T) {
 		{"paired more not formed than drawn", func(r *Results) { p := &r.Paired[0]; p.NotFormed = p.Resamples + 1 }, ".resamples_not_formed"},
 		{"paired unknown method", func(r *Results) { r.Paired[0].Method = "guess" }, `.method: "guess" is not placements, paired_resamples or point_difference`},
 		{"paired unknown kind", func(r *Results) { r.Paired[0].Kind = "other" }, `.kind: "other" is not extent`},
+		// Schema version 6: a judged difference has its interval, a
+		// point_difference has none and is only a described one's.
+		{"judged difference without its interval", func(r *Results) {
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Defined && p.Method == "placements" {
+					p.Low = nil
+					return
+				}
+			}
+		}, ".ci_low: is missing from a defined difference of method placements"},
+		{"point difference with an interval", func(r *Results) {
+			for i := range r.Paired {
+				if p := &r.Paired[i]; p.Defined && p.Method == "point_difference" {
+					p.SE = Float(0.01)
+					return
+				}
+			}
+		}, "a point_difference has no se, ci_low, ci_high or resamples"},
+		{"point difference of the AUC", func(r *Results) {
+			p := &r.Paired[0]
+			p.Method, p.SE, p.Low, p.High, p.Resamples, p.NotFormed = "point_difference", nil, nil, nil, 0, 0
+		}, ".method: point_difference is the method of the differences described, not judged"},
 		{"paired infinite difference", func(r *Results) { r.Paired[0].Diff = math.Inf(1) }, ".diff"},
 		{"scored point off the grid", func(r *Results) {
 			for i := range r.Points {

@@ -65,11 +65,13 @@ func estimateMemory(cells, rows int64, extents, workers, layoutValues int, readB
 // resampleMemo returns the bytes of the paired analysis's memo of
 // resampled scores (see estimateMemory) for extents extents: every model,
 // null and the distance-only null on every extent, Iterations resamples
-// each, with the two percentile thresholds and the fixed ones; and the
-// table of the resamples' counts for at most points test points.
+// each, with the two percentile thresholds and the fixed ones (the
+// memo's bytes without the Boyce index, which the run leaves out of the
+// resamples: metrics.CompareOptions); and the table of the resamples'
+// counts for at most points test points.
 func (o *Options) resampleMemo(extents, points int) int64 {
 	models := int64(len(o.Models) + len(o.Nulls) + 1)
-	perResample := int64(8*(len(o.E)+2+len(o.Thresholds)+1) + len(o.E) + 9)
+	perResample := int64(8*(len(o.E)+2+len(o.Thresholds)+1) + len(o.E))
 	// The run's test points are at most points: a table of fewer may fit
 	// where one of points would not.
 	table := min(int64(max(points, 0))*int64(max(o.Iterations, 0)), metrics.MaxDrawTableBytes)
