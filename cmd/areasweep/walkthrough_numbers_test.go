@@ -76,6 +76,7 @@ type modelVerdictJSON struct {
 		Diff         float64 `json:"diff"`
 		CILow        float64 `json:"ci_low"`
 		CIHigh       float64 `json:"ci_high"`
+		Method       string  `json:"method"`
 		TestSetShift float64 `json:"test_set_shift"`
 		Position     string  `json:"position"`
 	} `json:"differences"`
@@ -350,13 +351,13 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 		ok                  bool
 		common              int
 		diff, lo, hi, shift float64
-		position            string
+		position, method    string
 	}
 	diffOf := func(metric, model, ext string) difference {
 		if i := verdict(metric, model); i >= 0 {
 			for _, d := range r.Sensitivity.ModelVerdicts[i].Differences {
 				if d.Extent == ext {
-					return difference{d.Defined, d.CommonPoints, d.Diff, d.CILow, d.CIHigh, d.TestSetShift, d.Position}
+					return difference{d.Defined, d.CommonPoints, d.Diff, d.CILow, d.CIHigh, d.TestSetShift, d.Position, d.Method}
 				}
 			}
 		}
@@ -371,19 +372,11 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 		if !d.ok {
 			return "(no defined difference in results.json)"
 		}
+		if d.method == "point_difference" {
+			// Described, not judged: no interval.
+			return wtSigned(d.diff)
+		}
 		return wtInterval(d.diff, d.lo, d.hi)
-	}
-	// A described difference (a point_difference) has no interval: the
-	// cell gives the difference alone.
-	pointCell := func(metric, model, ext string) string {
-		if ext == "base" {
-			return "—"
-		}
-		d := diffOf(metric, model, ext)
-		if !d.ok {
-			return "(no defined difference in results.json)"
-		}
-		return wtSigned(d.diff)
 	}
 	aboveNull := func(metric, model string) int {
 		for i, a := range r.Sensitivity.AboveNull {
@@ -440,7 +433,7 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 			p := proc(sc("good", ext), e05)
 			return wt3(p.Ratio) + " (" + wt3(p.CILow) + "–" + wt3(p.CIHigh) + ")"
 		},
-		"ratio − base":                        func(ext string) string { return pointCell("partial_roc_e0.05", "good", ext) },
+		"ratio − base":                        func(ext string) string { return diffCell("partial_roc_e0.05", "good", ext) },
 		"share of test points missed at P10":  func(ext string) string { return wt3(th(sc("good", ext), p10).Omission) },
 		"share of the extent at or above MTP": func(ext string) string { return wt3(th(sc("good", ext), mtp).AreaFraction) },
 		"Boyce index":                         func(ext string) string { return wt3(sc("good", ext).Boyce.Index) },
