@@ -1050,9 +1050,9 @@ type CompareOptions struct {
 	// SD, interval or resamples (Resamples 0). The percentile intervals
 	// of its paired resamples fall short of their 95% coverage
 	// (TestPairedIntervalCoverage), so a caller that only describes the
-	// difference need not pay for them: the index's ranks are about two
-	// thirds of the time of a resample. The other scores' resamples are
-	// the same either way.
+	// difference need not pay for them: the index's ranks are about three
+	// fifths of the time of a resample (BenchmarkPairedRun). The other
+	// scores' resamples are the same either way.
 	BoyceUnresampled bool
 }
 
