@@ -269,7 +269,9 @@ type pairedRun struct {
 	evals [][]*Evaluator // [model][extent]
 	base  int
 	d     Draws
-	opt   CompareOptions // what a run passes (BoyceUnresampled) unless set
+	// opt is what a run passes to a comparison of two models on one
+	// extent, extentOpt to one of two extents of one model.
+	opt, extentOpt CompareOptions
 }
 
 // newPairedRun builds the evaluators of models x extents: extent k holds
@@ -349,15 +351,15 @@ func (pr *pairedRun) run(b *testing.B) {
 	for t := range om {
 		om[t] = [2]int{t, t}
 	}
-	cmp := func(x, y *Evaluator) {
-		if _, err := CompareWith(x, y, pr.d, om, pr.opt); err != nil {
+	cmp := func(x, y *Evaluator, o CompareOptions) {
+		if _, err := CompareWith(x, y, pr.d, om, o); err != nil {
 			b.Fatal(err)
 		}
 	}
 	for _, row := range pr.evals {
 		for k, ev := range row {
 			if k != pr.base {
-				cmp(ev, row[pr.base])
+				cmp(ev, row[pr.base], pr.extentOpt)
 			}
 		}
 	}
@@ -365,9 +367,9 @@ func (pr *pairedRun) run(b *testing.B) {
 	for k := range pr.evals[0] {
 		for m := 0; m < last; m++ {
 			for o := m + 1; o < last; o++ {
-				cmp(pr.evals[m][k], pr.evals[o][k])
+				cmp(pr.evals[m][k], pr.evals[o][k], pr.opt)
 			}
-			cmp(pr.evals[m][k], pr.evals[last][k])
+			cmp(pr.evals[m][k], pr.evals[last][k], pr.opt)
 		}
 	}
 }
@@ -377,8 +379,10 @@ func (pr *pairedRun) run(b *testing.B) {
 // = 1000, three models (the last one standing for the null) by the number
 // of extents, with some ties among the presences' values, and at 60
 // extents without ties too (continuous), with the Boyce index left out of
-// the resamples as a run does (CompareOptions.BoyceUnresampled) and, at
-// 60 extents, resampled too (boyce-resampled: what a run paid before);
+// the resamples as a run does (CompareOptions.BoyceUnresampled), and the
+// partial ROC ratios out of those of the comparisons between extents
+// (PartialROCUnresampled), and, at 60 extents, both resampled
+// (boyce-resampled: what a run paid before);
 // cpu-ns/op is the thread's CPU time (one goroutine), immune to
 // time-slicing by other processes.
 func BenchmarkPairedRun(b *testing.B) {
@@ -396,6 +400,7 @@ func BenchmarkPairedRun(b *testing.B) {
 		b.Run(name, func(b *testing.B) {
 			pr := newPairedRun(b, 3, c.extents, 500, c.continuous)
 			pr.opt.BoyceUnresampled = !c.boyce
+			pr.extentOpt = CompareOptions{BoyceUnresampled: !c.boyce, PartialROCUnresampled: !c.boyce}
 			b.ReportAllocs()
 			stop := startCPU(b)
 			for i := 0; i < b.N; i++ {

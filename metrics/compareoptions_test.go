@@ -6,18 +6,20 @@ import (
 	"testing"
 )
 
-// TestCompareBoyceUnresampled: with CompareOptions.BoyceUnresampled the
-// Boyce index's difference is the two indices on the common presences and
-// their difference, with no SD, interval or resamples, and every other
-// score of the comparison is bit for bit what CompareThresholds gives; an
-// evaluator whose memo was made without the index recomputes it when a
-// later comparison asks for the index, and gives what a fresh evaluator
-// gives. Both a side scored from its memo (all its presences common) and
-// a side scored on the common presences' counts are exercised.
+// TestCompareBoyceUnresampled: with CompareOptions.BoyceUnresampled and
+// PartialROCUnresampled the Boyce index's and the partial ROC ratios'
+// differences are the two scores on the common presences and their
+// difference, with no SD, interval or resamples, and every other score of
+// the comparison (the omission rates) is bit for bit what
+// CompareThresholds gives; an evaluator whose memo was made without the
+// index recomputes it when a later comparison asks for the index, and
+// gives what a fresh evaluator gives. Both a side scored from its memo
+// (all its presences common) and a side scored on the common presences'
+// counts are exercised.
 func TestCompareBoyceUnresampled(t *testing.T) {
 	r := rand.New(rand.NewPCG(41, 42))
 	c := randomCase(r, 600, 80, 30, 500)
-	s := Settings{E: []float64{0.05, 0.2}, BoyceSteps: 30}
+	s := Settings{E: []float64{0.2, 0.4}, BoyceSteps: 30}
 	_, a := build(t, c, nil, 256)
 	// The inner extent's background: the cells of value 100 or more.
 	ci := testCase{test: c.test, train: c.train}
@@ -55,7 +57,7 @@ func TestCompareBoyceUnresampled(t *testing.T) {
 	om := [][2]int{{0, 0}, {1, 1}}
 
 	outer, in := evals()
-	point, err := CompareWith(outer, in, d, om, CompareOptions{BoyceUnresampled: true})
+	point, err := CompareWith(outer, in, d, om, CompareOptions{BoyceUnresampled: true, PartialROCUnresampled: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -79,8 +81,18 @@ func TestCompareBoyceUnresampled(t *testing.T) {
 	if point.Boyce != want {
 		t.Errorf("unresampled Boyce difference %+v, want %+v (the resampled comparison's values, no spread)", point.Boyce, want)
 	}
+	for i, x := range full.PartialROC {
+		if !x.Defined || x.SD == 0 {
+			t.Fatalf("the resampled ratio difference at E = %v should be defined with a spread on this case: %+v", s.E[i], x)
+		}
+		want := Resampled{Defined: true, Scored: true, A: x.A, B: x.B, Diff: x.A - x.B}
+		if point.PartialROC[i] != want {
+			t.Errorf("unresampled ratio difference at E = %v: %+v, want %+v", s.E[i], point.PartialROC[i], want)
+		}
+	}
 	point.Boyce, full.Boyce = Resampled{}, Resampled{}
+	point.PartialROC, full.PartialROC = nil, nil
 	if !reflect.DeepEqual(point, full) {
-		t.Errorf("leaving the Boyce index out of the resamples changed another score:\n%+v\nwith it:\n%+v", point, full)
+		t.Errorf("leaving the Boyce index and the ratios out of the resamples changed another score:\n%+v\nwith them:\n%+v", point, full)
 	}
 }

@@ -85,7 +85,7 @@ func covAltIntervals(a, b *Evaluator, d Draws, full Resampled, rng *rand.Rand, d
 	pa, pb := commonPresences(a, b)
 	nE := len(a.es)
 	diffs := make([][]float64, nE+2)
-	resampleDiffs(a, b, d, [][2]int{{0, 0}}, pa, pb, diffs, true)
+	resampleDiffs(a, b, d, [][2]int{{0, 0}}, pa, pb, diffs, CompareOptions{})
 	ds := slices.Clone(diffs[0])
 	slices.Sort(ds)
 	d0 := full.Diff

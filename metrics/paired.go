@@ -299,7 +299,7 @@ func (e *Evaluator) ownResamples(d Draws, boyce bool) *ownMemo {
 	var v Values
 	var sc evalScratch
 	for r := 0; r < d.B; r++ {
-		e.evalGroups(gs, groups, before, gs.gather(rs, r, groups, before), &v, &sc, boyce)
+		e.evalGroups(gs, groups, before, gs.gather(rs, r, groups, before), &v, &sc, boyce, true)
 		copy(m.ratio[r*nE:], v.Ratio)
 		copy(m.ok[r*nE:], v.RatioOK)
 		copy(m.om[r*nT:], v.Omission)
@@ -540,7 +540,7 @@ func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalSc
 		acc += c
 	}
 	before[len(groups)] = acc
-	e.evalGroups(e.all, groups, before, r, out, sc, true)
+	e.evalGroups(e.all, groups, before, r, out, sc, true, true)
 }
 
 // evalGroups scores the multiset with groups[g] presences of kept group
@@ -554,8 +554,8 @@ func (e *Evaluator) evalInto(count []int32, group []int, out *Values, sc *evalSc
 // window holds. The counts are integers, so adding them up by group gives
 // exactly what adding them up by presence does. Without boyce the Boyce
 // index is left undefined (BoyceOK false): its ranks are most of the
-// time of a resample.
-func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *Values, sc *evalScratch, boyce bool) {
+// time of a resample; without partialROC the ratios are (RatioOK false).
+func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *Values, sc *evalScratch, boyce, partialROC bool) {
 	out.Ratio = resize(out.Ratio, len(e.es))
 	out.RatioOK = resize(out.RatioOK, len(e.es))
 	out.Omission = resize(out.Omission, len(gs.cut))
@@ -565,12 +565,14 @@ func (e *Evaluator) evalGroups(gs *groupSet, groups, before []int, r int, out *V
 		return
 	}
 	rf := float64(r)
-	prs := grow(sc.partial, len(e.es))
-	sc.partial = prs
-	gs.p.partialAreas(groups, r, e.es, prs, &sc.area)
-	for i, pr := range prs {
-		if pr.how == crossFormed {
-			out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
+	if partialROC {
+		prs := grow(sc.partial, len(e.es))
+		sc.partial = prs
+		gs.p.partialAreas(groups, r, e.es, prs, &sc.area)
+		for i, pr := range prs {
+			if pr.how == crossFormed {
+				out.Ratio[i], out.RatioOK[i] = pr.model/pr.null, true
+			}
 		}
 	}
 	for t, cut := range gs.cut {
@@ -1054,6 +1056,13 @@ type CompareOptions struct {
 	// fifths of the time of a resample (BenchmarkPairedRun). The other
 	// scores' resamples are the same either way.
 	BoyceUnresampled bool
+	// PartialROCUnresampled does the same for the partial ROC ratios
+	// (Comparison.PartialROC: the two ratios on the common presences and
+	// their difference only), whose paired intervals between two nested
+	// extents fall short of their coverage too. An evaluator's memo of
+	// its own resamples keeps them (other comparisons of the evaluator
+	// read them); a side scored on its common presences skips them.
+	PartialROCUnresampled bool
 }
 
 // CompareWith is CompareThresholds with options o.
@@ -1114,9 +1123,19 @@ func CompareWith(a, b *Evaluator, d Draws, om [][2]int, o CompareOptions) (Compa
 	ok := fa.BoyceOK && fb.BoyceOK
 	cmp.Boyce = Resampled{A: fa.Boyce, B: fb.Boyce, Defined: ok, Scored: ok, Resamples: d.B}
 	if len(pa) > 0 {
-		resampleDiffs(a, b, d, om, pa, pb, diffs, !o.BoyceUnresampled)
+		resampleDiffs(a, b, d, om, pa, pb, diffs, o)
 	}
 	finishResampled(&cmp, diffs, d.B)
+	if o.PartialROCUnresampled {
+		for i := range cmp.PartialROC {
+			ok := fa.RatioOK[i] && fb.RatioOK[i]
+			x := Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: ok, Scored: ok}
+			if ok {
+				x.Diff = x.A - x.B
+			}
+			cmp.PartialROC[i] = x
+		}
+	}
 	if o.BoyceUnresampled {
 		x := Resampled{A: fa.Boyce, B: fb.Boyce, Defined: ok, Scored: ok}
 		if x.Defined {
@@ -1173,8 +1192,10 @@ func commonPresences(a, b *Evaluator) (pa, pb []int) {
 // resampleDiffs appends to diffs (see appendResampleDiffs) the paired
 // differences a - b of each of the draws' resamples of the presences both
 // hold (positions pa in a, pb in b), each side scored on its resampled
-// counts; the Boyce index only when boyce (see CompareOptions).
-func resampleDiffs(a, b *Evaluator, d Draws, om [][2]int, pa, pb []int, diffs [][]float64, boyce bool) {
+// counts; the partial ROC ratios and the Boyce index only where o
+// resamples them (see CompareOptions).
+func resampleDiffs(a, b *Evaluator, d Draws, om [][2]int, pa, pb []int, diffs [][]float64, o CompareOptions) {
+	boyce, proc := !o.BoyceUnresampled, !o.PartialROCUnresampled
 	nE := len(a.es)
 	// A side whose presences are all common scores the resamples of its
 	// own memo (the same numbers, computed once per evaluator and
@@ -1209,24 +1230,25 @@ func resampleDiffs(a, b *Evaluator, d Draws, om [][2]int, pa, pb []int, diffs []
 		if ma != nil {
 			ma.load(r, nE, len(a.cut), &ra)
 		} else {
-			a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa, boyce)
+			a.evalGroups(gsa, groupsA, beforeA, gsa.gather(rs, r, groupsA, beforeA), &ra, &sa, boyce, proc)
 		}
 		if mb != nil {
 			mb.load(r, nE, len(b.cut), &rb)
 		} else {
-			b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb, boyce)
+			b.evalGroups(gsb, groupsB, beforeB, gsb.gather(rs, r, groupsB, beforeB), &rb, &sb, boyce, proc)
 		}
-		appendResampleDiffs(diffs, &ra, &rb, om)
+		appendResampleDiffs(diffs, &ra, &rb, om, proc)
 	}
 }
 
 // appendResampleDiffs appends one resample's paired differences a - b to
 // diffs: one list per E (partial ROC ratio, where both sides define it),
 // per pair of thresholds om (omission, when a holds a presence) and the
-// Boyce index (where both define it), in that order.
-func appendResampleDiffs(diffs [][]float64, ra, rb *Values, om [][2]int) {
+// Boyce index (where both define it), in that order; the ratios only
+// with proc.
+func appendResampleDiffs(diffs [][]float64, ra, rb *Values, om [][2]int, proc bool) {
 	nE, nT := len(ra.Ratio), len(om)
-	for i := 0; i < nE; i++ {
+	for i := 0; proc && i < nE; i++ {
 		if ra.RatioOK[i] && rb.RatioOK[i] {
 			diffs[i] = append(diffs[i], ra.Ratio[i]-rb.Ratio[i])
 		}

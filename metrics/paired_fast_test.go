@@ -421,7 +421,7 @@ func TestCompareMatchesReference(t *testing.T) {
 		for b2 := 0; b2 < d.B && len(common) > 0; b2++ {
 			d.fill(b2, global)
 			ra, rb := a.evalReference(on(a)), b.evalReference(on(b))
-			appendResampleDiffs(diffs, &ra, &rb, same)
+			appendResampleDiffs(diffs, &ra, &rb, same, true)
 		}
 		finishResampled(&cmp, diffs, d.B)
 		return cmp

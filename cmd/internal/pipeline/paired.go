@@ -128,9 +128,14 @@ func pairedRecords(kind report.PairKind, ma, ea, mb, eb string, a, b *metrics.Ev
 			keys, om = append(keys, k), append(om, [2]int{i, j})
 		}
 	}
-	// The Boyce index's differences are described, never judged
-	// (report.BoyceCoverage): its resamples are left out.
-	cmp, err := metrics.CompareWith(a, b, d, om, metrics.CompareOptions{BoyceUnresampled: true})
+	// The differences described, never judged (report.NotCalibrated: the
+	// Boyce index's, the partial ROC ratio's between extents) get no
+	// interval: their resamples are left out.
+	o := metrics.CompareOptions{BoyceUnresampled: report.NotCalibrated(report.MetricKeyBoyce, kind)}
+	if len(es) > 0 {
+		o.PartialROCUnresampled = report.NotCalibrated(report.MetricKeyPartialROC(es[0]), kind)
+	}
+	cmp, err := metrics.CompareWith(a, b, d, om, o)
 	if err != nil {
 		return nil, err
 	}
