@@ -1128,22 +1128,24 @@ func CompareWith(a, b *Evaluator, d Draws, om [][2]int, o CompareOptions) (Compa
 	finishResampled(&cmp, diffs, d.B)
 	if o.PartialROCUnresampled {
 		for i := range cmp.PartialROC {
-			ok := fa.RatioOK[i] && fb.RatioOK[i]
-			x := Resampled{A: fa.Ratio[i], B: fb.Ratio[i], Defined: ok, Scored: ok}
-			if ok {
-				x.Diff = x.A - x.B
-			}
-			cmp.PartialROC[i] = x
+			cmp.PartialROC[i] = pointDifference(fa.Ratio[i], fb.Ratio[i], fa.RatioOK[i] && fb.RatioOK[i])
 		}
 	}
 	if o.BoyceUnresampled {
-		x := Resampled{A: fa.Boyce, B: fb.Boyce, Defined: ok, Scored: ok}
-		if x.Defined {
-			x.Diff = x.A - x.B
-		}
-		cmp.Boyce = x
+		cmp.Boyce = pointDifference(fa.Boyce, fb.Boyce, ok)
 	}
 	return cmp, nil
+}
+
+// pointDifference is the Resampled of a score left out of the resamples
+// (CompareOptions): a and b on the common presences and, when both are
+// formed (ok), a - b, with no spread.
+func pointDifference(a, b float64, ok bool) Resampled {
+	x := Resampled{A: a, B: b, Defined: ok, Scored: ok}
+	if ok {
+		x.Diff = a - b
+	}
+	return x
 }
 
 // checkComparable reports whether a and b can be compared: made with the
