@@ -29,7 +29,7 @@ import (
 // between nested extents no method reaches 93% (our band) at 30 points
 // or more on every landscape, so areasweep describes the ratio's
 // differences between extents instead of judging them (report's
-// PartialROCExtentCoverage).
+// PartialROCCoverageClause).
 //
 // With d the full-sample difference, d*_b the B resampled differences,
 // q(p) their p-quantile (Quantile, type 7), Phi the standard normal CDF

@@ -18,7 +18,10 @@ import (
 //	AREASWEEP_COVERAGE_SWEEP=1 go test -count=1 -run TestCoverageSweep -v -timeout 60m ./metrics/
 //
 // AREASWEEP_COVERAGE_SWEEP_R sets the repetitions per n (default 500),
-// AREASWEEP_COVERAGE_SWEEP_ONLY a comma-separated list of variant names.
+// AREASWEEP_COVERAGE_SWEEP_ONLY a comma-separated list of variant names,
+// AREASWEEP_COVERAGE_SWEEP_N the numbers of test points (default 10, 30,
+// 100, 150, 500) and AREASWEEP_COVERAGE_SWEEP_E the E of the partial ROC
+// ratio (default covE), both comma-separated.
 //
 // Each variant is newCovLandscape's construction with other parameters
 // (covVariant); "base" reproduces newCovLandscape exactly (checked). For
@@ -49,6 +52,8 @@ type covVariant struct {
 	// copy its cells in turn, area and values, each value plus copyOutside
 	// N(0,1).
 	copyOutside float64
+	// e: the E of the partial ROC ratio (nil: covE).
+	e []float64
 }
 
 func covBaseVariant() covVariant {
@@ -100,7 +105,11 @@ func covVariants() []covVariant {
 func newCovVariant(t testing.TB, v covVariant) *covLandscape {
 	t.Helper()
 	rng := rand.New(rand.NewPCG(20261203, 1))
-	L := &covLandscape{s: Settings{E: []float64{0.05}}, noRatio: v.levelsA > 0}
+	es := v.e
+	if es == nil {
+		es = covE
+	}
+	L := &covLandscape{s: Settings{E: es}, noRatio: v.levelsA > 0}
 	nc := v.cols * v.rows
 	L.area = make([]int64, nc)
 	L.inSmall = make([]bool, nc)
@@ -194,6 +203,37 @@ func TestCoverageSweep(t *testing.T) {
 	if s := os.Getenv("AREASWEEP_COVERAGE_SWEEP_ONLY"); s != "" {
 		only = strings.Split(s, ",")
 	}
+	var ns []int
+	var es []float64
+	for _, l := range []struct {
+		name string
+		set  func(v float64)
+	}{{"AREASWEEP_COVERAGE_SWEEP_N", func(v float64) {
+		if v != math.Trunc(v) || v < 2 {
+			t.Fatalf("AREASWEEP_COVERAGE_SWEEP_N: %v is not a whole number of test points of 2 or more", v)
+		}
+		ns = append(ns, int(v))
+	}}, {"AREASWEEP_COVERAGE_SWEEP_E", func(v float64) {
+		if !(v > 0 && v < 1) {
+			t.Fatalf("AREASWEEP_COVERAGE_SWEEP_E: %v is not in (0, 1)", v)
+		}
+		es = append(es, v)
+	}}} {
+		s := os.Getenv(l.name)
+		if s == "" {
+			continue
+		}
+		for _, f := range strings.Split(s, ",") {
+			var v float64
+			if _, err := fmt.Sscan(f, &v); err != nil {
+				t.Fatalf("%s=%q: want comma-separated numbers", l.name, s)
+			}
+			l.set(v)
+		}
+	}
+	if ns == nil {
+		ns = covNs
+	}
 	// The builder reproduces newCovLandscape for the base variant.
 	{
 		a, b := newCovLandscape(t), newCovVariant(t, covBaseVariant())
@@ -206,6 +246,7 @@ func TestCoverageSweep(t *testing.T) {
 		if only != nil && !slices.Contains(only, v.name) {
 			continue
 		}
+		v.e = es
 		t.Run(v.name, func(t *testing.T) {
 			L := newCovVariant(t, v)
 			var tru [2][2]covTruth
@@ -237,8 +278,8 @@ func TestCoverageSweep(t *testing.T) {
 			}
 			for _, me := range [][2]int{{0, 0}, {0, 1}, {1, 0}} {
 				x := tru[me[0]][me[1]]
-				fmt.Fprintf(&b, "  model %c on %-5s: AUC %.4f (cells %.4f), partial ROC ratio %.4f, omission %.4f, Boyce %.4f\n",
-					"AB"[me[0]], []string{"small", "large"}[me[1]], x.auc, x.aucU, x.ratio, x.omission, x.boyce)
+				fmt.Fprintf(&b, "  model %c on %-5s: AUC %.4f (cells %.4f), partial ROC ratio %.4f at E = %g, omission %.4f, Boyce %.4f\n",
+					"AB"[me[0]], []string{"small", "large"}[me[1]], x.auc, x.aucU, x.ratio, L.s.E, x.omission, x.boyce)
 			}
 			tc := map[covKey]*covTCount{}
 			hook := func(kind string, n int, cmp Comparison, truths map[covKey]float64) {
@@ -275,7 +316,7 @@ func TestCoverageSweep(t *testing.T) {
 					}
 				}
 			}
-			tallies, truths := runCoverageHook(t, L, []int{10, 30, 100, 500}, R, 1000, hook)
+			tallies, truths := runCoverageHook(t, L, ns, R, 1000, hook)
 			fmt.Fprintf(&b, "R = %d repetitions per n, B = 1000 (columns as TestPairedIntervalCoverage's)\n%s", R, covTable(tallies, truths))
 			keys := slices.SortedFunc(func(yield func(covKey) bool) {
 				for k := range tc {

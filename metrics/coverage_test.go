@@ -73,6 +73,14 @@ const (
 	covCols, covRows = 80, 60
 )
 
+// covE are the E at which the partial ROC ratio's intervals are checked;
+// the first is the one the alternative intervals (coverage_alt_test.go)
+// are measured at.
+var covE = []float64{0.05, 0.01, 0.1, 0.2}
+
+// covNs are the numbers of test points the check draws.
+var covNs = []int{10, 30, 100, 150, 500}
+
 // newCovLandscape builds the landscape (fixed seed): cells, areas, model
 // values, the presence weights q over the small extent, each model's
 // threshold, layout (every value of the small extent: the test points
@@ -80,7 +88,7 @@ const (
 func newCovLandscape(t testing.TB) *covLandscape {
 	t.Helper()
 	rng := rand.New(rand.NewPCG(20261203, 1))
-	L := &covLandscape{s: Settings{E: []float64{0.05}}}
+	L := &covLandscape{s: Settings{E: covE}}
 	nc := covCols * covRows
 	L.area = make([]int64, nc)
 	L.inSmall = make([]bool, nc)
@@ -255,9 +263,16 @@ func covTrueOmission(L *covLandscape, k int, t float64) float64 {
 
 // covTruth holds the true scores of one model on one extent.
 type covTruth struct {
-	auc, aucU, ratio, omission, boyce float64
-	ratioOK, boyceOK                  bool
+	auc, aucU, omission, boyce float64
+	boyceOK                    bool
+	// ratio and ratioOK: the partial ROC ratio at each of the landscape's
+	// E (L.s.E, in order).
+	ratio   []float64
+	ratioOK []bool
 }
+
+// covRatioMetric names the tallies of the partial ROC ratio at E.
+func covRatioMetric(e float64) string { return fmt.Sprintf("partial ROC E=%g", e) }
 
 // covTrue computes the true scores of model k on extent ext: the AUCs
 // and omission by enumeration, the partial ROC ratio and Boyce index as
@@ -282,7 +297,7 @@ func covTrue(t testing.TB, L *covLandscape, k, ext int) covTruth {
 	v, v3 := e.eval(count), e.eval(count3)
 	tr := covTruth{auc: covTrueAUC(L, k, ext, false), aucU: covTrueAUC(L, k, ext, true),
 		omission: covTrueOmission(L, k, L.th[k]),
-		ratio:    v.Ratio[0], ratioOK: v.RatioOK[0], boyce: v.Boyce, boyceOK: v.BoyceOK}
+		ratio:    slices.Clone(v.Ratio), ratioOK: slices.Clone(v.RatioOK), boyce: v.Boyce, boyceOK: v.BoyceOK}
 	for _, c := range []struct {
 		name       string
 		got, other float64
@@ -291,15 +306,22 @@ func covTrue(t testing.TB, L *covLandscape, k, ext int) covTruth {
 		{"AUC (multiset vs enumeration)", v.AUC, tr.auc, 1e-12},
 		{"unweighted AUC (multiset vs enumeration)", v.AUCUnweighted, tr.aucU, 1e-12},
 		{"omission (multiset vs enumeration)", v.Omission[0], tr.omission, 1e-12},
-		{"partial ROC ratio (q vs 3q)", v.Ratio[0], v3.Ratio[0], 1e-12},
 		{"Boyce index (q vs 3q)", v.Boyce, v3.Boyce, 1e-12},
 	} {
 		if math.Abs(c.got-c.other) > c.tol {
 			t.Fatalf("model %d extent %d: %s: %.15g vs %.15g", k, ext, c.name, c.got, c.other)
 		}
 	}
-	if (!L.noRatio && (!tr.ratioOK || !v3.RatioOK[0])) || !tr.boyceOK || !v3.BoyceOK {
-		t.Fatalf("model %d extent %d: the true partial ROC ratio or Boyce index is undefined", k, ext)
+	for i, e := range L.s.E {
+		if math.Abs(v.Ratio[i]-v3.Ratio[i]) > 1e-12 {
+			t.Fatalf("model %d extent %d: partial ROC ratio at E = %g (q vs 3q): %.15g vs %.15g", k, ext, e, v.Ratio[i], v3.Ratio[i])
+		}
+		if !L.noRatio && (!v.RatioOK[i] || !v3.RatioOK[i]) {
+			t.Fatalf("model %d extent %d: the true partial ROC ratio at E = %g is undefined", k, ext, e)
+		}
+	}
+	if !tr.boyceOK || !v3.BoyceOK {
+		t.Fatalf("model %d extent %d: the true Boyce index is undefined", k, ext)
 	}
 	return tr
 }
@@ -379,7 +401,7 @@ func covPosition(lo, hi, tol float64) string {
 // covTolerance is the default tolerance of each metric
 // (report.DefaultToleranceAUC and the others, report/results.go).
 var covTolerance = map[string]float64{
-	"AUC": 0.02, "AUC unweighted": 0.02, "partial ROC E=0.05": 0.05, "omission": 0.05, "Boyce": 0.10,
+	"AUC": 0.02, "AUC unweighted": 0.02, "partial ROC": 0.05, "omission": 0.05, "Boyce": 0.10,
 }
 
 // covKey names one tally: comparison kind, metric and n.
@@ -426,11 +448,13 @@ func runCoverageAlt(t testing.TB, L *covLandscape, ns []int, R, B int, hook func
 		}
 	}
 	truthDiff := map[string][2]float64{ // [extent: A small - A large, model: A - B on small]
-		"AUC":                {tru[0][0].auc - tru[0][1].auc, tru[0][0].auc - tru[1][0].auc},
-		"AUC unweighted":     {tru[0][0].aucU - tru[0][1].aucU, tru[0][0].aucU - tru[1][0].aucU},
-		"partial ROC E=0.05": {tru[0][0].ratio - tru[0][1].ratio, tru[0][0].ratio - tru[1][0].ratio},
-		"omission":           {0, tru[0][0].omission - tru[1][0].omission},
-		"Boyce":              {tru[0][0].boyce - tru[0][1].boyce, tru[0][0].boyce - tru[1][0].boyce},
+		"AUC":            {tru[0][0].auc - tru[0][1].auc, tru[0][0].auc - tru[1][0].auc},
+		"AUC unweighted": {tru[0][0].aucU - tru[0][1].aucU, tru[0][0].aucU - tru[1][0].aucU},
+		"omission":       {0, tru[0][0].omission - tru[1][0].omission},
+		"Boyce":          {tru[0][0].boyce - tru[0][1].boyce, tru[0][0].boyce - tru[1][0].boyce},
+	}
+	for i, e := range L.s.E {
+		truthDiff[covRatioMetric(e)] = [2]float64{tru[0][0].ratio[i] - tru[0][1].ratio[i], tru[0][0].ratio[i] - tru[1][0].ratio[i]}
 	}
 	tallies := map[covKey]*covTally{}
 	truths := map[covKey]float64{}
@@ -490,20 +514,23 @@ func runCoverageAlt(t testing.TB, L *covLandscape, ns []int, R, B int, hook func
 					}
 					x.add(iv.iv.Diff, iv.iv.Low, iv.iv.High, truths[covKey{c.kind, iv.metric, n}], covTolerance[iv.metric])
 				}
-				rs := []struct {
+				type named struct {
 					metric string
 					r      Resampled
-				}{{"partial ROC E=0.05", cmp.PartialROC[0]}, {"Boyce", cmp.Boyce}}
+				}
+				var rs []named
+				for i, e := range L.s.E {
+					rs = append(rs, named{covRatioMetric(e), cmp.PartialROC[i]})
+				}
+				rs = append(rs, named{"Boyce", cmp.Boyce})
 				if c.kind == "model" {
-					rs = append(rs, struct {
-						metric string
-						r      Resampled
-					}{"omission", cmp.Omission[0]})
+					rs = append(rs, named{"omission", cmp.Omission[0]})
 				} else if o := cmp.Omission[0]; o.Diff != 0 || o.Low != 0 || o.High != 0 {
 					t.Fatalf("n %d rep %d: omission between extents %+v, want 0 throughout", n, rep, o)
 				}
 				for _, r := range rs {
-					if L.noRatio && r.metric == "partial ROC E=0.05" {
+					isRatio := strings.HasPrefix(r.metric, "partial ROC E=")
+					if L.noRatio && isRatio {
 						continue
 					}
 					x := tally(c.kind, r.metric, n)
@@ -514,8 +541,12 @@ func runCoverageAlt(t testing.TB, L *covLandscape, ns []int, R, B int, hook func
 						x.notJudged++
 					default:
 						tr := truths[covKey{c.kind, r.metric, n}]
-						x.add(r.r.Diff, r.r.Low, r.r.High, tr, covTolerance[r.metric])
-						if alt != nil && r.metric == "partial ROC E=0.05" {
+						tol := covTolerance[r.metric]
+						if isRatio {
+							tol = covTolerance["partial ROC"]
+						}
+						x.add(r.r.Diff, r.r.Low, r.r.High, tr, tol)
+						if alt != nil && r.metric == covRatioMetric(L.s.E[0]) {
 							dk := covKey{c.kind, "", n}
 							if alt.diag[dk] == nil {
 								alt.diag[dk] = &covDiag{}
@@ -529,7 +560,7 @@ func runCoverageAlt(t testing.TB, L *covLandscape, ns []int, R, B int, hook func
 									alt.tallies[k] = &covTally{}
 								}
 								iv := ivs[m]
-								alt.tallies[k].add(r.r.Diff, iv[0], iv[1], tr, covTolerance[r.metric])
+								alt.tallies[k].add(r.r.Diff, iv[0], iv[1], tr, tol)
 							}
 						}
 					}
@@ -577,7 +608,7 @@ func covTable(tallies map[covKey]*covTally, truths map[covKey]float64) string {
 // freedom for the n of the coverage check, R's qt(0.975, n - 1) (as in
 // testdata/metrics/t975_golden.csv; the printed tables' 2.262 at 9 and
 // 2.045 at 29 degrees of freedom, recalled from memory, agree).
-var covT975 = map[int]float64{10: 2.2621571627982049, 30: 2.0452296421327034, 100: 1.9842169515864172, 500: 1.9647293909876884}
+var covT975 = map[int]float64{10: 2.2621571627982049, 30: 2.0452296421327034, 100: 1.9842169515864172, 150: 1.9760131776891861, 500: 1.9647293909876884}
 
 // covIndependentAUC is the coverage of the placements' t interval
 // computed without the package: Rind draws of n cells from the presence
@@ -651,8 +682,19 @@ func covIndependentAUC(L *covLandscape, k1, e1, k2, e2 int, cells bool, n, Rind 
 //	  and 0.943 over 20,000 draws: the 1,000-draw run lies about 2 SE low
 //	  by chance, still inside the band. n >= 100: 0.940-0.953. Every AUC
 //	  row is asserted nominal.
-//	partial ROC ratio (percentile): model 0.735 (n = 10), 0.927 (30),
-//	  0.966 (100), 0.951 (500); extent 0.379, 0.751, 0.869, 0.903: the
+//	partial ROC ratio (percentile) at E = 0.05: model 0.735 (n = 10),
+//	  0.927 (30), 0.966 (100), 0.961 (150), 0.951 (500); extent 0.379,
+//	  0.751, 0.869, 0.909, 0.903. At E = 0.01 (n = 10, 30, 100, 150,
+//	  500): model 0.799, 0.833, 0.919, 0.931, 0.963, extent 0.086, 0.242,
+//	  0.595, 0.729, 0.844; at E = 0.1: model 0.835, 0.947, 0.949, 0.956,
+//	  0.937, extent 0.578, 0.813, 0.933, 0.928, 0.922; at E = 0.2: model
+//	  0.863, 0.933, 0.959, 0.956, 0.963, extent 0.783, 0.784, 0.767,
+//	  0.700, 0.506 (there the full-sample difference itself lies 0.0026
+//	  below the truth at n = 500, 1.6 times its SD, as on the copies
+//	  landscape at E = 0.05). Between models the interval needs about 1.5
+//	  test points expected beyond the 1 - E crossing (E n = 1.5: 30 points
+//	  at E = 0.05, 150 at 0.01), which report.MinCrossingPoints asks.
+//	  At E = 0.05 the
 //	  extent difference's sampling distribution is skewed (at n = 500 its
 //	  median lies 0.0011 below its mean, the truth), the percentile
 //	  interval's misses all fall on one side (84 below, 2 above at n =
@@ -674,11 +716,11 @@ func covIndependentAUC(L *covLandscape, k1, e1, k2, e2 int, cells bool, n, Rind 
 //	  BCa and m-out-of-n intervals of the same harness cover no better on
 //	  every landscape (basic 0.347 to 0.730, normal 0.616 to 0.937, BCa
 //	  0.051 to 0.803 here), so areasweep describes these differences
-//	  rather than judging them (report.PartialROCExtentCoverage).
+//	  rather than judging them (report.PartialROCCoverageClause).
 //	omission (percentile, models): 0.807 (10), 0.913 (30), 0.950 (100),
-//	  0.947 (500): a difference of two discrete shares.
-//	Boyce index (percentile): model 0.341, 0.377, 0.704, 0.879; extent
-//	  0.869, 0.706, 0.388, 0.831: the index from n points is biased (its
+//	  0.936 (150), 0.947 (500): a difference of two discrete shares.
+//	Boyce index (percentile): model 0.341, 0.377, 0.704, 0.799, 0.879;
+//	  extent 0.869, 0.706, 0.388, 0.490, 0.831: the index from n points is biased (its
 //	  population values are near 1: 0.9998 and 0.987 for A and B on the
 //	  small extent; from 10 points their difference averages 0.33, not
 //	  0.012), and a percentile interval carries the bias twice.
@@ -691,38 +733,77 @@ var covExpect = []struct {
 	{"extent", "AUC", 10, true, 0},
 	{"extent", "AUC", 30, true, 0},
 	{"extent", "AUC", 100, true, 0},
+	{"extent", "AUC", 150, true, 0},
 	{"extent", "AUC", 500, true, 0},
 	{"extent", "AUC unweighted", 10, true, 0},
 	{"extent", "AUC unweighted", 30, true, 0},
 	{"extent", "AUC unweighted", 100, true, 0},
+	{"extent", "AUC unweighted", 150, true, 0},
 	{"extent", "AUC unweighted", 500, true, 0},
 	{"model", "AUC", 10, true, 0},
 	{"model", "AUC", 30, true, 0},
 	{"model", "AUC", 100, true, 0},
+	{"model", "AUC", 150, true, 0},
 	{"model", "AUC", 500, true, 0},
 	{"model", "AUC unweighted", 10, true, 0},
 	{"model", "AUC unweighted", 30, true, 0},
 	{"model", "AUC unweighted", 100, true, 0},
+	{"model", "AUC unweighted", 150, true, 0},
 	{"model", "AUC unweighted", 500, true, 0},
+	{"extent", "partial ROC E=0.01", 10, false, 0.086},
+	{"extent", "partial ROC E=0.01", 30, false, 0.242},
+	{"extent", "partial ROC E=0.01", 100, false, 0.595},
+	{"extent", "partial ROC E=0.01", 150, false, 0.729},
+	{"extent", "partial ROC E=0.01", 500, false, 0.844},
 	{"extent", "partial ROC E=0.05", 10, false, 0.379},
 	{"extent", "partial ROC E=0.05", 30, false, 0.751},
 	{"extent", "partial ROC E=0.05", 100, false, 0.869},
+	{"extent", "partial ROC E=0.05", 150, false, 0.909},
 	{"extent", "partial ROC E=0.05", 500, false, 0.903},
+	{"extent", "partial ROC E=0.1", 10, false, 0.578},
+	{"extent", "partial ROC E=0.1", 30, false, 0.813},
+	{"extent", "partial ROC E=0.1", 100, false, 0.933},
+	{"extent", "partial ROC E=0.1", 150, false, 0.928},
+	{"extent", "partial ROC E=0.1", 500, false, 0.922},
+	{"extent", "partial ROC E=0.2", 10, false, 0.783},
+	{"extent", "partial ROC E=0.2", 30, false, 0.784},
+	{"extent", "partial ROC E=0.2", 100, false, 0.767},
+	{"extent", "partial ROC E=0.2", 150, false, 0.7},
+	{"extent", "partial ROC E=0.2", 500, false, 0.506},
+	{"model", "partial ROC E=0.01", 10, false, 0.799},
+	{"model", "partial ROC E=0.01", 30, false, 0.833},
+	{"model", "partial ROC E=0.01", 100, false, 0.919},
+	{"model", "partial ROC E=0.01", 150, false, 0.931},
+	{"model", "partial ROC E=0.01", 500, true, 0},
 	{"model", "partial ROC E=0.05", 10, false, 0.735},
 	{"model", "partial ROC E=0.05", 30, false, 0.927},
 	{"model", "partial ROC E=0.05", 100, true, 0},
+	{"model", "partial ROC E=0.05", 150, true, 0},
 	{"model", "partial ROC E=0.05", 500, true, 0},
+	{"model", "partial ROC E=0.1", 10, false, 0.835},
+	{"model", "partial ROC E=0.1", 30, true, 0},
+	{"model", "partial ROC E=0.1", 100, true, 0},
+	{"model", "partial ROC E=0.1", 150, true, 0},
+	{"model", "partial ROC E=0.1", 500, true, 0},
+	{"model", "partial ROC E=0.2", 10, false, 0.863},
+	{"model", "partial ROC E=0.2", 30, false, 0.933},
+	{"model", "partial ROC E=0.2", 100, true, 0},
+	{"model", "partial ROC E=0.2", 150, true, 0},
+	{"model", "partial ROC E=0.2", 500, true, 0},
 	{"model", "omission", 10, false, 0.807},
 	{"model", "omission", 30, false, 0.913},
 	{"model", "omission", 100, true, 0},
+	{"model", "omission", 150, true, 0},
 	{"model", "omission", 500, true, 0},
 	{"extent", "Boyce", 10, false, 0.869},
 	{"extent", "Boyce", 30, false, 0.706},
 	{"extent", "Boyce", 100, false, 0.388},
+	{"extent", "Boyce", 150, false, 0.49},
 	{"extent", "Boyce", 500, false, 0.831},
 	{"model", "Boyce", 10, false, 0.341},
 	{"model", "Boyce", 30, false, 0.377},
 	{"model", "Boyce", 100, false, 0.704},
+	{"model", "Boyce", 150, false, 0.799},
 	{"model", "Boyce", 500, false, 0.879},
 }
 
@@ -736,7 +817,7 @@ func TestPairedIntervalCoverage(t *testing.T) {
 	if testing.Short() {
 		R, Rind = 250, 5000
 	}
-	tallies, truths := runCoverage(t, L, []int{10, 30, 100, 500}, R, 1000)
+	tallies, truths := runCoverage(t, L, covNs, R, 1000)
 	t.Logf("R = %d repetitions per n, B = 1000 resamples; intervals judged, covering the truth, wholly below or above it, wholly on the wrong side of 0 (sign), excluding 0, positions against the default tolerance that contradict the truth (wrong), undefined, not judged (fewer than %d formed resamples), mean width\n%s",
 		R, covMinFormed, covTable(tallies, truths))
 	for _, c := range []struct {
@@ -758,8 +839,12 @@ func TestPairedIntervalCoverage(t *testing.T) {
 	}
 	for _, c := range covExpect {
 		x := tallies[covKey{c.kind, c.metric, c.n}]
-		if x == nil || x.judged < R/2 {
-			t.Errorf("%s %s n=%d: %v, want at least %d judged intervals", c.kind, c.metric, c.n, x, R/2)
+		// At least 40% judged (our choice): the tie rule leaves the
+		// partial ROC ratio undefined where the 1 - E crossing falls on a
+		// tied value, about half the draws at E = 0.2 and n = 500, where
+		// 500 test points fall on 1,600 cells (49% judged).
+		if x == nil || x.judged < R*2/5 {
+			t.Errorf("%s %s n=%d: %v, want at least %d judged intervals", c.kind, c.metric, c.n, x, R*2/5)
 			continue
 		}
 		j := float64(x.judged)

@@ -116,7 +116,7 @@ func TestFewResamplesNotJudged(t *testing.T) {
 		}
 	}
 	// The headline describes the partial ROC ratio between extents, never
-	// judged (PartialROCExtentCoverage), the same at 39 resamples and 40.
+	// judged (partialROCExtentCoverage), the same at 39 resamples and 40.
 	for _, h := range []string{s39.Headline, s40.Headline} {
 		if !strings.Contains(h, "The partial ROC ratio at E = 0.05 is described, not judged, across extents") || strings.Contains(h, "not judged: its differences come from") {
 			t.Errorf("headline: %s", h)
@@ -408,7 +408,7 @@ func TestMethodsBootstrapFewFormed(t *testing.T) {
 // with --iterations 39: coarse's ratio at E = 0.05 is undefined on base,
 // the methods text says so). The partial ROC ratio between extents is now
 // described, not judged, whatever the resamples
-// (PartialROCExtentCoverage): the headline describes the models with a
+// (partialROCExtentCoverage): the headline describes the models with a
 // difference and names apart those without one. The cases follow from
 // which model's differences are formed (no other computation).
 func TestHeadlineFewResamplesNamesModels(t *testing.T) {
@@ -469,7 +469,7 @@ func TestResampledPointsCutOff(t *testing.T) {
 				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
 			}
 		case mv.Metric == key:
-			// Described between extents (PartialROCExtentCoverage); each
+			// Described between extents (partialROCExtentCoverage); each
 			// difference on fewer than 30 points says so.
 			if mv.Verdict != JudgementUndetermined || !strings.Contains(mv.Sentence, "described, not judged") {
 				t.Errorf("%s of %s: %s %s", mv.Metric, mv.Model, mv.Verdict, mv.Sentence)
@@ -509,7 +509,7 @@ func TestResampledPointsCutOff(t *testing.T) {
 		t.Fatal("no partial ROC comparison with the null")
 	}
 	// Between extents the partial ROC ratio is described, whatever the
-	// common test points (PartialROCExtentCoverage).
+	// common test points (partialROCExtentCoverage).
 	described := "The partial ROC ratio at E = 0.05 is described, not judged, across extents"
 	checkWords(t, "headline", s.Headline, []string{described}, []string{"is undetermined for good, truncated and broad"})
 	page, err := htmlPage(r, nil, methodsDoc{})

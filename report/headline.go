@@ -511,7 +511,7 @@ func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
 		return ""
 	}
 	// Between extents the partial ROC ratio is described, not judged
-	// (PartialROCExtentCoverage); with no difference to describe, the
+	// (partialROCExtentCoverage); with no difference to describe, the
 	// verdicts say why (undefined, or scored on the base extent only).
 	if d := partialROCDescribed(a, mvs, key); d != "" {
 		return d
@@ -521,7 +521,7 @@ func partialROCHeadline(a *analysis, s *Sensitivity, nowhere []string) string {
 
 // partialROCDescribed is the headline's sentence on the partial ROC ratio
 // (key, the first E) of the models of mvs: described, not judged
-// (PartialROCExtentCoverage), by how many differences from the base
+// (partialROCExtentCoverage), by how many differences from the base
 // extent lie beyond the tolerance and the largest, per model, naming
 // apart the models undefined on the base extent and those with no
 // difference for another reason; when no model has a difference, why

@@ -18,6 +18,9 @@ type analysisView struct {
 	StandIn                             string
 	PairedResamples                     int
 	MinPairedPoints, MinResampledPoints int
+	// CrossingNote names the partial ROC ratio's larger cut-offs between
+	// models at small E (crossingNote), "" when there are none.
+	CrossingNote string
 	// MinPercentileResamples is the cut-off on formed resamples.
 	MinPercentileResamples int
 	// MapModel is the model whose omitted test points the maps mark, ""
@@ -108,7 +111,7 @@ func analysisSection(r *Results) analysisView {
 	for _, m := range s.Metrics {
 		label[m.Key] = m.Label
 	}
-	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinResampledPoints: MinResampledPoints, MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
+	v := analysisView{BaseExtent: s.BaseExtent, PairedResamples: r.Settings.PairedResamples, MinPairedPoints: MinPairedPoints, MinResampledPoints: MinResampledPoints, CrossingNote: crossingNote(r.Settings), MinPercentileResamples: MinPercentileResamples, NullNote: nullThresholdNote(r)}
 	if s.BaseExtent == "" {
 		// No extent scored: the differences would be taken from the
 		// base extent, and none stands in for it.

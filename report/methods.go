@@ -308,8 +308,8 @@ func methodsInference(b *strings.Builder, r *Results) {
 		b.WriteString("\n\n")
 		return
 	}
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
-		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, fewResamplesNote(r))
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample%s; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, crossingNote(st), fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
 	b.WriteString(partialROCNotJudged(s, st))
 	b.WriteString(" As descriptions of the chosen family, without inference, we report the spread of each score across extents")
@@ -734,6 +734,25 @@ func fewResamplesNote(r *Results) string {
 		MinPercentileResamples, n, len(r.Paired), r.Settings.PairedResamples, Plural(r.Settings.PairedResamples))
 }
 
+// crossingNote names the partial ROC ratio's larger cut-offs between
+// models (partialROCMinPoints) at the run's E where they exceed
+// MinResampledPoints: ", and for the partial ROC ratio between two models
+// 150 at E = 0.01, so that at least 1.5 test records are expected beyond
+// its 1 − E crossing"; "" when every E is 0.05 or more.
+func crossingNote(st Settings) string {
+	var cuts []string
+	for _, e := range st.E {
+		if c := partialROCMinPoints(e); c > MinResampledPoints {
+			cuts = append(cuts, fmt.Sprintf("%d at E = %s", c, fmtG(e)))
+		}
+	}
+	if len(cuts) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(", and for the partial ROC ratio between two models %s, so that at least %s test records are expected beyond its 1 − E crossing",
+		joinList(cuts), fmtG(MinCrossingPoints))
+}
+
 // defaultsNote says, inside the list of the tolerances the verdicts
 // judge against (AUC, omission rate and predicted area), that they are
 // areasweep's defaults when all of them are: not a published standard.
@@ -760,19 +779,12 @@ func boyceNotJudged(s *Sensitivity, st Settings) string {
 
 // partialROCNotJudged says, when a partial ROC ratio is among s's
 // metrics, that its differences between extents were described, not
-// judged, and why (PartialROCExtentCoverage); "".
+// judged, and why (partialROCExtentCoverage); "".
 func partialROCNotJudged(s *Sensitivity, st Settings) string {
-	at := ""
-	for _, e := range st.E {
-		if fmtG(e) != fmtG(PartialROCCoverageE) {
-			// Measured at E = 0.05 only (coverageWhere).
-			at = fmt.Sprintf(" at E = %s", fmtG(PartialROCCoverageE))
-		}
-	}
 	for _, m := range s.Metrics {
 		if m.Kind == MetricPartialROC {
-			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s in our simulation check%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, we give them no interval, and we say only how many exceed %s.",
-				PartialROCExtentCoverage, at, toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
+			return fmt.Sprintf(" The partial ROC ratio's differences between extents were described, not judged: their percentile intervals fall short of their 95%% coverage between nested extents (%s; the difference rests on the lowest E share of the test records, whose resampled differences do not mirror its sampling distribution, and no other bootstrap interval we measured did better on every landscape), so no verdict rests on them, we give them no interval, and we say only how many exceed %s.",
+				partialROCCoverageRun(st.E), toleranceText(MetricInfo{Kind: MetricPartialROC, Tolerance: st.TolerancePartialROC}))
 		}
 	}
 	return ""

@@ -9,8 +9,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"reflect"
+	"slices"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -52,7 +55,7 @@ import (
 // method "point_difference": the two scores on the common test points and
 // their difference, without se, ci_low, ci_high or resamples (their
 // intervals fall short of their 95% coverage: BoyceCoverage,
-// PartialROCExtentCoverage), in paired and in sensitivity; and leaves
+// partialROCExtentCoverage), in paired and in sensitivity; and leaves
 // se, ci_low and ci_high out of an undefined difference instead of
 // writing 0. A version 5 file, whose intervals for those differences
 // would be printed again by an older report, is refused.
@@ -471,7 +474,7 @@ type Preview struct {
 // between two extents): the two scores on the common points and their
 // difference only, with no SE, interval or resamples, since the
 // intervals measured for them fall short of their 95% coverage
-// (BoyceCoverage, PartialROCExtentCoverage) and an interval that does
+// (BoyceCoverage, partialROCExtentCoverage) and an interval that does
 // is not one to print.
 type Paired struct {
 	// Metric is a MetricInfo key ("auc", "partial_roc_e0.05", ...).
@@ -538,7 +541,7 @@ func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 // its percentile interval comes from fewer than MinPercentileResamples
 // formed resamples, positionNotCalibrated for any other point_difference
 // (a run writes the Boyce index's differences, BoyceCoverage, and the
-// partial ROC ratio's between two extents, PartialROCExtentCoverage, so)
+// partial ROC ratio's between two extents, partialROCExtentCoverage, so)
 // and any such difference of method paired_resamples, ""
 // when p is judged. Too few points is said first: it is the reason
 // whatever the resamples.
@@ -559,8 +562,8 @@ func (p *Paired) notJudgedKind() string {
 // short of their 95% coverage in our simulation check, so that their
 // differences are described, not judged: the Boyce index's of any kind
 // (BoyceCoverage), and the partial ROC ratio's between two extents of one
-// model (PartialROCExtentCoverage; between two models they reach 95%
-// from about 100 common test points and are judged).
+// model (partialROCExtentCoverage; between two models they come near
+// 95% once E n reaches MinCrossingPoints, and are judged from there).
 func NotCalibrated(metric string, kind PairKind) bool {
 	return metric == MetricKeyBoyce || (kind == PairedKindExtent && isPartialROCKey(metric))
 }
@@ -585,40 +588,70 @@ const MetricKeyBoyce = "boyce"
 // ranking or reading rests on it.
 const BoyceCoverage = "34% to 88%"
 
-// PartialROCExtentCoverage is what the report says of the coverage of the
-// partial ROC ratio's paired intervals between two extents of one model:
-// the range measured by metrics.TestPairedIntervalCoverage between two
-// nested extents at E = 0.05, 10 to 500 common test points (README, "How
-// often the 95% intervals cover"; 59% to 89% at 30 points over six
-// other landscapes in metrics.TestCoverageAlt, 500 draws each). The difference of the two
+// partialROCExtentCoverage is what the report says of the coverage of
+// the partial ROC ratio's paired intervals between two extents of one
+// model, at each E where it was measured: the range measured by
+// metrics.TestPairedIntervalCoverage between two nested extents, 10 to
+// 500 common test points (README, "How often the 95% intervals cover";
+// at E = 0.05, 59% to 89% at 30 points over six other landscapes in
+// metrics.TestCoverageSweep, 500 draws each). The difference of the two
 // ratios rests on the test points at the crossing of y = 1 - E, the
-// lowest E share of them (at 10 or 30 points the lowest or the second
-// lowest), whose bootstrap distribution is lumpy and does not mirror the
-// sampling distribution: the misses fall on one side, a side that
-// differs between landscapes. No other interval from the same resamples
-// measured (basic, normal, bias-corrected, BCa, m out of n;
-// metrics/coverage_alt_test.go) reached 93% on every landscape at 30
-// points or more. So a partial ROC ratio difference between extents is
-// described, never judged: no verdict rests on it (the comparisons of
-// two models on one extent are judged).
-const PartialROCExtentCoverage = "38% to 90%"
+// lowest E share of them (at E = 0.05 and 10 or 30 points the lowest or
+// the second lowest), whose bootstrap distribution is lumpy and does not
+// mirror the sampling distribution: the misses fall on one side, a side
+// that differs between landscapes. No other interval from the same
+// resamples measured (basic, normal, bias-corrected, BCa, m out of n;
+// metrics/coverage_alt_test.go, at E = 0.05) reached 93% on every
+// landscape at 30 points or more. So a partial ROC ratio difference
+// between extents is described, never judged: no verdict rests on it (the
+// comparisons of two models on one extent are judged, on enough test
+// points: MinCrossingPoints).
+var partialROCExtentCoverage = []struct {
+	e     float64
+	cover string
+}{{0.01, "9% to 84%"}, {0.05, "38% to 91%"}, {0.1, "58% to 93%"}, {0.2, "51% to 78%"}}
 
-// PartialROCCoverageE is the E at which PartialROCExtentCoverage was
-// measured (metrics.TestPairedIntervalCoverage and TestCoverageSweep
-// score the ratio at E = 0.05 only).
-const PartialROCCoverageE = 0.05
+// partialROCCoverageAll is the range of partialROCExtentCoverage over all
+// its E.
+const partialROCCoverageAll = "9% to 93%"
 
-// coverageWhere says, after PartialROCExtentCoverage quoted for the
-// partial ROC ratio of key (a MetricInfo key), that it was measured at
-// another E when key's E is not PartialROCCoverageE: ", measured at E =
-// 0.05, not at E = 0.1"; "" at E = 0.05 or for another key. A range
-// quoted bare for E = 0.1 claimed a measurement never made.
-func coverageWhere(key string) string {
-	e, ok := strings.CutPrefix(key, "partial_roc_e")
-	if !ok || e == fmtG(PartialROCCoverageE) {
-		return ""
+// PartialROCCoverageClause says what our simulation check measured of the
+// coverage of the partial ROC ratio's paired intervals between extents at
+// the E of key (a MetricInfo key): "38% to 91% in our simulation check" at
+// a measured E; at another, the range over the measured ones and that it
+// was not run at key's E: "9% to 93% in our simulation check at E = 0.01,
+// 0.05, 0.1 and 0.2, not run at E = 0.3". A range quoted bare for an E
+// never simulated claimed a measurement never made.
+func PartialROCCoverageClause(key string) string {
+	e, _ := partialROCKeyE(key)
+	return partialROCCoverageRun([]float64{e})
+}
+
+// partialROCCoverageRun says the same for the E of a run, in the methods
+// text: "38% to 91% in our simulation check" for one measured E, "38% to
+// 91% at E = 0.05 and 58% to 93% at E = 0.1 in our simulation check" for
+// several, and when one was not simulated the range over those that were
+// and "..., not run at E = 0.3".
+func partialROCCoverageRun(es []float64) string {
+	var parts, missing, measured []string
+	for _, c := range partialROCExtentCoverage {
+		measured = append(measured, fmtG(c.e))
 	}
-	return fmt.Sprintf(", measured at E = %s, not at E = %s", fmtG(PartialROCCoverageE), e)
+	for _, e := range es {
+		if i := slices.Index(measured, fmtG(e)); i >= 0 {
+			parts = append(parts, fmt.Sprintf("%s at E = %s", partialROCExtentCoverage[i].cover, fmtG(e)))
+		} else {
+			missing = append(missing, fmtG(e))
+		}
+	}
+	switch {
+	case len(missing) > 0:
+		return fmt.Sprintf("%s in our simulation check at E = %s, not run at E = %s", partialROCCoverageAll, joinList(measured), joinList(missing))
+	case len(parts) == 1:
+		// One E: the range alone, as the sentences about that E quote it.
+		return partialROCExtentCoverage[slices.Index(measured, fmtG(es[0]))].cover + " in our simulation check"
+	}
+	return joinList(parts) + " in our simulation check"
 }
 
 // PublishedPSize is how often the published bootstrap's P of the partial
@@ -679,11 +712,44 @@ func (p *Paired) minPoints() int { return minCommonPoints(p.Method, p.Kind, p.Me
 // sides compare each common test point with the model's same threshold,
 // fixed from its training points whatever the extent), so that no
 // interval is to be calibrated.
+//
+// A partial ROC ratio's difference between two models (or a model and a
+// null) from the resamples also needs E n >= MinCrossingPoints
+// (partialROCMinPoints): 150 common test points at E = 0.01.
 func minCommonPoints(method string, kind PairKind, metric string) int {
 	if (method == "paired_resamples" || method == "point_difference") && !(kind == PairedKindExtent && strings.HasPrefix(metric, "omission_")) {
+		if e, ok := partialROCKeyE(metric); ok && kind != PairedKindExtent {
+			return partialROCMinPoints(e)
+		}
 		return MinResampledPoints
 	}
 	return MinPairedPoints
+}
+
+// partialROCMinPoints is the fewest common test points a partial ROC
+// ratio's difference at E between two models is judged on:
+// MinResampledPoints, and at least MinCrossingPoints / E, so that E n,
+// the number of test points expected beyond the curve's 1 - E crossing,
+// is at least MinCrossingPoints (30 at E = 0.05 and above, 60 at 0.025,
+// 150 at 0.01).
+func partialROCMinPoints(e float64) int {
+	// The factor keeps 1.5 / 0.05 = 29.999999999999996 and 1.5 / 0.01 =
+	// 150.00000000000003 at 30 and 150.
+	return max(MinResampledPoints, int(math.Ceil(MinCrossingPoints/e*(1-1e-12))))
+}
+
+// partialROCKeyE returns the E of a partial ROC ratio's MetricInfo key
+// (MetricKeyPartialROC); ok is false for another key.
+func partialROCKeyE(key string) (e float64, ok bool) {
+	s, ok := strings.CutPrefix(key, "partial_roc_e")
+	if !ok {
+		return 0, false
+	}
+	e, err := strconv.ParseFloat(s, 64)
+	if err != nil || !(e > 0 && e < 1) {
+		return 0, false
+	}
+	return e, true
 }
 
 // notJudgedReason words a not-judged kind (positionTooFew,
@@ -704,11 +770,11 @@ func notJudgedReason(kind, metric string, common, formed, cut int) string {
 
 // notCalibratedWhy says why a difference of metric (a MetricInfo key)
 // with position positionNotCalibrated is not judged: the partial ROC
-// ratio's between extents (PartialROCExtentCoverage), or the Boyce
+// ratio's between extents (partialROCExtentCoverage), or the Boyce
 // index's (BoyceCoverage, also for any other key).
 func notCalibratedWhy(metric string) string {
 	if isPartialROCKey(metric) {
-		return "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check" + coverageWhere(metric)
+		return "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + PartialROCCoverageClause(metric)
 	}
 	return "the Boyce index's paired intervals fall short of their 95% coverage: " + BoyceCoverage + " in our simulation check"
 }

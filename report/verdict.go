@@ -43,7 +43,7 @@ func (a *analysis) testPointCounts(ids []string) ([]int, bool) {
 // same words are the readings ReadingTooFew and ReadingTooFewResamples.
 // positionNotCalibrated is that of every Boyce index difference from the
 // paired resamples (BoyceCoverage) and every partial ROC ratio difference
-// between two extents (PartialROCExtentCoverage): reported, not judged.
+// between two extents (partialROCExtentCoverage): reported, not judged.
 const (
 	positionTooFew          = "too_few"
 	positionTooFewResamples = "too_few_resamples"
@@ -396,10 +396,10 @@ func beyondCount(mv *ModelVerdict, tol float64) (defined, beyond int) {
 // described, not judged: "its paired intervals fall short of their 95%
 // coverage: 34% to 88% in our simulation check" (BoyceCoverage), or for
 // the partial ROC ratio, "... between extents ..."
-// (PartialROCExtentCoverage).
+// (partialROCExtentCoverage).
 func notCalibratedCoverage(m MetricInfo) string {
 	if m.Kind == MetricPartialROC {
-		return fmt.Sprintf("its paired intervals between extents fall short of their 95%% coverage: %s in our simulation check%s", PartialROCExtentCoverage, coverageWhere(m.Key))
+		return "its paired intervals between extents fall short of their 95% coverage: " + PartialROCCoverageClause(m.Key)
 	}
 	return fmt.Sprintf("its paired intervals fall short of their 95%% coverage: %s in our simulation check", BoyceCoverage)
 }

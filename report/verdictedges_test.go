@@ -281,7 +281,7 @@ func TestPartialROCExtentsDescribed(t *testing.T) {
 	}
 	count := fmt.Sprintf("%d of %d lie beyond ±0.05", beyond, defined)
 	largest := fmt.Sprintf("%s on %s", signedSmall(big.Diff), big.Extent)
-	checkWords(t, "sentence", mv.Sentence, []string{"Partial ROC ratio, E = 0.05 of good is described, not judged (its paired intervals between extents fall short of their 95% coverage: " + PartialROCExtentCoverage + " in our simulation check)",
+	checkWords(t, "sentence", mv.Sentence, []string{"Partial ROC ratio, E = 0.05 of good is described, not judged (its paired intervals between extents fall short of their 95% coverage: 38% to 91% in our simulation check)",
 		count, "the largest is " + largest}, []string{"extent-sensitive", "95% interval"})
 	judgedModels := 0
 	for _, p := range r.Paired {
@@ -292,7 +292,7 @@ func TestPartialROCExtentsDescribed(t *testing.T) {
 		case p.Kind == PairedKindExtent && p.Judged():
 			t.Errorf("paired record %s %s %s judged", p.Kind, p.Model, p.Extent)
 		case p.Kind == PairedKindExtent && p.CommonPoints >= MinResampledPoints && p.Formed() >= MinPercentileResamples &&
-			p.NotJudgedReason() != "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: "+PartialROCExtentCoverage+" in our simulation check":
+			p.NotJudgedReason() != "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: 38% to 91% in our simulation check":
 			t.Errorf("paired record %s %s: reason %q", p.Model, p.Extent, p.NotJudgedReason())
 		case p.Kind == PairedKindModel && p.Judged():
 			judgedModels++

@@ -51,12 +51,10 @@ func TestDemoFewResamplesNotJudged(t *testing.T) {
 				// Never judged (report.BoyceCoverage), whatever the resamples.
 				want = "the Boyce index's paired intervals fall short of their 95% coverage: " + report.BoyceCoverage + " in our simulation check"
 			case p.Defined && described:
-				// Never judged between extents (report.PartialROCExtentCoverage).
-				want = "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + report.PartialROCExtentCoverage + " in our simulation check"
-				if e := strings.TrimPrefix(p.Metric, "partial_roc_e"); e != "0.05" {
-					// Measured at E = 0.05 only (report.PartialROCCoverageE).
-					want += ", measured at E = 0.05, not at E = " + e
-				}
+				// Never judged between extents (the coverage measured at
+				// its E: report.PartialROCCoverageClause).
+				want = "the partial ROC ratio's paired intervals between extents fall short of their 95% coverage: " + map[string]string{
+					"partial_roc_e0.05": "38% to 91%", "partial_roc_e0.1": "58% to 93%"}[p.Metric] + " in our simulation check"
 			}
 			if p.Method == "paired_resamples" {
 				resampled[p.Metric] = true

@@ -46,6 +46,6 @@ for (name in unique(cases$case)) {
 }
 write.csv(out, file.path(here, "proc_golden.csv"), row.names = FALSE, quote = FALSE)
 
-dfs <- c(1, 2, 3, 4, 5, 9, 10, 19, 29, 30, 44, 49, 99, 499, 1000, 100000)
+dfs <- c(1, 2, 3, 4, 5, 9, 10, 19, 29, 30, 44, 49, 99, 149, 499, 1000, 100000)
 write.csv(data.frame(df = sprintf("%d", as.integer(dfs)), q = sprintf("%.17g", qt(0.975, dfs))),
           file.path(here, "t975_golden.csv"), row.names = FALSE, quote = FALSE)

@@ -254,6 +254,12 @@
 #     difference leaves its se and interval out instead of writing 0; the
 #     Boyce index is left out of the paired resamples; every other number
 #     unchanged, scores.csv unchanged).
+#   - rewritten on 2026-12-05, session 14 (the coverage check now scores
+#     the partial ROC ratio at E = 0.01, 0.05, 0.1 and 0.2: the range
+#     quoted between extents is the one measured at the ratio's own E,
+#     "38% to 91%" at E = 0.05 and "58% to 93%" at the demo's E = 0.1,
+#     without the ", measured at E = 0.05, not at E = 0.1"; no number
+#     changed, scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
