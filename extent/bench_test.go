@@ -220,8 +220,9 @@ func BenchmarkWriteGeoPackageStudy(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		tmp := b.TempDir()
 		b.Run(fmt.Sprintf("extents=%d", n), func(b *testing.B) {
+			// A folder per run: -count runs it again, with the same names.
+			tmp := b.TempDir()
 			c0 := processCPU()
 			for i := 0; i < b.N; i++ {
 				if err := f.WriteGeoPackage(filepath.Join(tmp, fmt.Sprintf("%d-%d.gpkg", b.N, i))); err != nil {

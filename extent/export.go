@@ -39,15 +39,14 @@ func (f *Family) WriteGeoPackage(path string) error {
 	outlines := make([][]byte, len(f.Members))
 	errs := make([]error, len(f.Members))
 	parallelRows(len(f.Members), func() func(k int) {
+		// Each worker traces in buffers of its own (outlineScratch); the
+		// WKB is a copy of its own.
+		sc := &outlineScratch{}
 		return func(k int) {
 			if f.Members[k].Status != vocab.StatusOK {
 				return
 			}
-			mp, err := f.Outline(k)
-			if err == nil {
-				outlines[k], err = wkb.Marshal(mp)
-			}
-			errs[k] = err
+			outlines[k], errs[k] = wkb.Marshal(f.outline(k, sc))
 		}
 	})
 	fields := []LayerField{{"id", godal.FTString}, {"kind", godal.FTString}, {"params", godal.FTString},
