@@ -42,7 +42,9 @@ func TestUnitIDOfDatesAndLists(t *testing.T) {
 // TestUnitIDsDifferingInSpaces: ids "A" and " A" (or "A" and "A" with a
 // no-break space, U+00A0) are two units, as the README says features are
 // grouped by their value; the run now warns, naming both, where it kept
-// them apart without a word.
+// them apart without a word. So do ids that differ only in letter case
+// (Unicode case folding: "Straße" and "STRASSE" too) or in the Unicode
+// form of the same letters (composed or decomposed), quoted with escapes.
 func TestUnitIDsDifferingInSpaces(t *testing.T) {
 	dir := t.TempDir()
 	g, _ := geoGrid(t, 0, 4, 0.1, 40, 40)
@@ -56,6 +58,11 @@ func TestUnitIDsDifferingInSpaces(t *testing.T) {
 	}{
 		{"leading space", []string{"A", " A", "B"}, `("A" and " A")`},
 		{"no-break space", []string{"A\u00a0", "B", "A"}, `("A\u00a0" and "A")`},
+		{"letter case", []string{"Forest", "B", "forest"}, `("Forest" and "forest")`},
+		// "é" as one character (U+00E9) and as "e" and a combining acute
+		// accent (U+0301): the same letters, two byte sequences.
+		{"unicode form", []string{"Prair\u00e9", "B", "Praire\u0301"}, `("Prair\u00e9" and "Praire\u0301")`},
+		{"sharp s folded", []string{"Stra\u00dfe", "B", "STRASSE"}, `("Straße" and "STRASSE")`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			path := writeGeoJSON(t, dir, tc.name+".geojson", tc.ids, [][][2]float64{sq(0.5, 0.5), sq(2.5, 0.5), sq(0.5, 2.5)})
@@ -66,14 +73,15 @@ func TestUnitIDsDifferingInSpaces(t *testing.T) {
 			if len(units) != 3 {
 				t.Errorf("%d units, want 3 (the ids are kept as they are)", len(units))
 			}
-			if !strings.Contains(strings.Join(warns, "\n"), "differ only in the spaces around them are kept as separate units "+tc.want) {
+			if !strings.Contains(strings.Join(warns, "\n"), "differ only in the spaces around them, in letter case or in the Unicode encoding of the same letters are kept as separate units "+tc.want) {
 				t.Errorf("warnings %q lack %s", warns, tc.want)
 			}
 		})
 	}
-	// Ids that differ otherwise draw no such warning.
-	path := writeGeoJSON(t, dir, "plain.geojson", []string{"A", "a", "B"}, [][][2]float64{sq(0.5, 0.5), sq(2.5, 0.5), sq(0.5, 2.5)})
+	// Ids that differ otherwise draw no such warning (an accent is a
+	// letter of its own).
+	path := writeGeoJSON(t, dir, "plain.geojson", []string{"A", "Prair\u00e9", "Praire"}, [][][2]float64{sq(0.5, 0.5), sq(2.5, 0.5), sq(0.5, 2.5)})
 	if _, warns, err := ReadUnits(path, "id", g); err != nil || len(warns) != 0 {
-		t.Errorf("ids A, a, B: warnings %q, error %v", warns, err)
+		t.Errorf("ids A, Prairé, Praire: warnings %q, error %v", warns, err)
 	}
 }

@@ -19,6 +19,8 @@ import (
 	"github.com/airbusgeo/godal"
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/encoding/wkb"
+	"golang.org/x/text/cases"
+	"golang.org/x/text/unicode/norm"
 
 	"areasweep/extent/gdalmsg"
 	"areasweep/extent/vocab"
@@ -137,19 +139,30 @@ func readUnits(path, field string, g *Grid) ([]Unit, []string, error) {
 
 // spacedIDs warns of ids that differ only in white space around them
 // ("A" and " A", or "A" with a no-break space after it, as a spreadsheet
-// or a padded text field leaves them): they are two units, each occupied
-// or not on its own, which is seldom what was meant. "" when there are
-// none.
+// or a padded text field leaves them), in letter case ("Forest" and
+// "forest") or in how the same letters are encoded (an "é" as one
+// character or as "e" and a combining accent, Unicode's composed and
+// decomposed forms, as text from different systems leaves them): they are
+// two units, each occupied or not on its own, which is seldom what was
+// meant. Ids that differ in their encoding are quoted with escapes, so
+// that the message shows the difference. "" when there are none.
 func spacedIDs(path, field string, ids []string) string {
 	first := map[string]string{}
 	var pairs []string
 	n := 0
+	fold := cases.Fold()
 	for _, id := range ids {
-		key := strings.TrimSpace(id)
+		key := fold.String(norm.NFC.String(strings.TrimSpace(id)))
 		if prev, ok := first[key]; ok {
 			n++
 			if len(pairs) < 3 {
-				pairs = append(pairs, fmt.Sprintf("%q and %q", prev, id))
+				f := "%q and %q"
+				if !norm.NFC.IsNormalString(prev) || !norm.NFC.IsNormalString(id) {
+					// Not in composed form: only the escapes show how they
+					// differ.
+					f = "%+q and %+q"
+				}
+				pairs = append(pairs, fmt.Sprintf(f, prev, id))
 			}
 			continue
 		}
@@ -162,7 +175,7 @@ func spacedIDs(path, field string, ids []string) string {
 	if n > len(pairs) {
 		more = fmt.Sprintf(" and %d more", n-len(pairs))
 	}
-	return fmt.Sprintf("%s: ids in field %q that differ only in the spaces around them are kept as separate units (%s%s); if they name one unit, make them equal",
+	return fmt.Sprintf("%s: ids in field %q that differ only in the spaces around them, in letter case or in the Unicode encoding of the same letters are kept as separate units (%s%s); if they name one unit, make them equal",
 		path, field, strings.Join(pairs, ", "), more)
 }
 
