@@ -17,7 +17,7 @@ func TestPartialROCCrossingCutOff(t *testing.T) {
 	for _, c := range []struct {
 		e    float64
 		want int
-	}{{0.05, 30}, {0.1, 30}, {0.2, 30}, {0.5, 30}, {0.04, 38}, {0.03, 50}, {0.025, 60}, {0.01, 150}, {0.001, 1500}} {
+	}{{0.05, 30}, {0.1, 30}, {0.2, 30}, {0.5, 30}, {0.04, 38}, {0.03, 50}, {0.025, 60}, {0.01, 150}, {0.001, 1500}, {1e-300, 1 << 53}, {5e-324, 1 << 53}} {
 		if got := partialROCMinPoints(c.e); got != c.want {
 			t.Errorf("partialROCMinPoints(%g) = %d, want %d", c.e, got, c.want)
 		}

@@ -734,8 +734,9 @@ func minCommonPoints(method string, kind PairKind, metric string) int {
 // 150 at 0.01).
 func partialROCMinPoints(e float64) int {
 	// The factor keeps 1.5 / 0.05 = 29.999999999999996 and 1.5 / 0.01 =
-	// 150.00000000000003 at 30 and 150.
-	return max(MinResampledPoints, int(math.Ceil(MinCrossingPoints/e*(1-1e-12))))
+	// 150.00000000000003 at 30 and 150; the cap keeps a tiny E (1e-300,
+	// allowed) from overflowing int, which would judge on any number.
+	return max(MinResampledPoints, int(min(math.Ceil(MinCrossingPoints/e*(1-1e-12)), 1<<53)))
 }
 
 // partialROCKeyE returns the E of a partial ROC ratio's MetricInfo key
