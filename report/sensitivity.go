@@ -64,7 +64,7 @@ const (
 	// and 60; 0.85 to 0.95 at E = 0.01 and 150), with at most 0.4% of the
 	// positions against the default tolerance contrary to the truth at
 	// E = 0.01 and 0.025 on those points. At E = 0.1 and 0.2, 30 points
-	// (E n = 3 and 6) covered 0.92 to 0.96 and 0.93 to 0.95.
+	// (E n = 3 and 6) covered 0.91 to 0.96 and 0.93 to 0.95.
 	MinCrossingPoints = 1.5
 	// MinPercentileResamples: with fewer resamples than this a 2.5th and
 	// a 97.5th percentile do not lie inside the resampled values (1/0.025
