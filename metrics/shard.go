@@ -494,24 +494,41 @@ func CheckShardSet(headers []ShardHeader) error {
 	if len(missing) > 0 {
 		return &ShardError{Err: ErrShardMissing, Detail: fmt.Sprintf("shard(s) %s of %d not given; run them (or find their files) and merge again", strings.Join(missing, ", "), ref.Shards)}
 	}
-	var all []BlockRange
-	for i := range headers {
-		all = append(all, headers[i].Blocks...)
+	// Each range with the shard it came from, to name the files at a gap
+	// or an overlap (shards of one run never make either: a header was
+	// altered).
+	type owned struct {
+		r BlockRange
+		h *ShardHeader
 	}
-	slices.SortFunc(all, func(a, b BlockRange) int { return a.First - b.First })
-	next := 0
-	for _, r := range all {
-		if r.First != next {
-			what := "gap"
-			if r.First < next {
-				what = "overlap"
-			}
-			return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("%s at block %d of %d", what, min(r.First, next), ref.TotalBlocks)}
+	var all []owned
+	for i := range headers {
+		for _, r := range headers[i].Blocks {
+			all = append(all, owned{r, &headers[i]})
 		}
-		next = r.End
+	}
+	slices.SortStableFunc(all, func(a, b owned) int { return a.r.First - b.r.First })
+	const redo = "a partial file was altered or damaged; run the shards named again"
+	next := 0
+	var prev *ShardHeader
+	for _, o := range all {
+		if r := o.r; r.First != next {
+			if r.First < next {
+				return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("%s and %s both hold block %d of %d; %s", name(prev), name(o.h), r.First, ref.TotalBlocks, redo)}
+			}
+			if prev == nil {
+				return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("blocks 0 to %d of %d are in no shard (the first, %s, begins at block %d); %s", r.First-1, ref.TotalBlocks, name(o.h), r.First, redo)}
+			}
+			return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("blocks %d to %d of %d are in no shard (between %s and %s); %s", next, r.First-1, ref.TotalBlocks, name(prev), name(o.h), redo)}
+		}
+		next, prev = o.r.End, o.h
 	}
 	if next != ref.TotalBlocks {
-		return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("blocks %d to %d are in no shard", next, ref.TotalBlocks-1)}
+		last := ""
+		if prev != nil {
+			last = fmt.Sprintf(" (after %s)", name(prev))
+		}
+		return &ShardError{Err: ErrShardBlocks, Detail: fmt.Sprintf("blocks %d to %d of %d are in no shard%s; %s", next, ref.TotalBlocks-1, ref.TotalBlocks, last, redo)}
 	}
 	return nil
 }

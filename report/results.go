@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"reflect"
@@ -817,10 +818,40 @@ func BaseExtent(ids []string) string {
 func Load(path string) (*Results, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("report: read %s: %w", path, err)
+		return nil, readResultsError(path, err)
 	}
 	return Decode(path, data)
 }
+
+// readResultsError words a failed read of the results file path: missing,
+// a folder, not readable, or another error of the file system (err, as
+// the system words it, after the path).
+func readResultsError(path string, err error) error {
+	switch st, serr := os.Stat(path); {
+	case errors.Is(err, fs.ErrNotExist):
+		return &readError{fmt.Sprintf("report: %s does not exist: it was removed or renamed after the run, or the folder is not the --out folder of a finished run; restore it from a copy, or run the study again", path), err}
+	case serr == nil && st.IsDir():
+		return &readError{fmt.Sprintf("report: %s is a folder, not the results file a run writes; give the --out folder of a finished run", path), err}
+	case errors.Is(err, fs.ErrPermission):
+		return &readError{fmt.Sprintf("report: %s cannot be read (permission denied); give yourself read access (chmod u+r) and run again", path), err}
+	}
+	cause := err
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		cause = pe.Err
+	}
+	return &readError{fmt.Sprintf("report: %s cannot be read (%v)", path, cause), err}
+}
+
+// readError is a worded failure to read a results file: its message, and
+// the file system's error beneath (errors.Is(err, fs.ErrNotExist)).
+type readError struct {
+	msg string
+	err error
+}
+
+func (e *readError) Error() string { return e.msg }
+func (e *readError) Unwrap() error { return e.err }
 
 // LoadWritten is Load for a file whose SHA-256 (hex) a run recorded as it
 // wrote it (a batch's completion marker): while the file still has that
@@ -831,7 +862,7 @@ func Load(path string) (*Results, error) {
 func LoadWritten(path, sum string) (*Results, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("report: read %s: %w", path, err)
+		return nil, readResultsError(path, err)
 	}
 	if h := sha256.Sum256(data); sum == "" || hex.EncodeToString(h[:]) != sum {
 		return Decode(path, data)

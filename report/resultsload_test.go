@@ -3,6 +3,8 @@ package report
 import (
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -60,4 +62,36 @@ func BenchmarkLoadWritten(b *testing.B) {
 			}
 		}
 	})
+}
+
+// TestLoadUnreadable: a results file that is missing, a folder, or not
+// readable is named with what happened and what to do, in our words (Go's
+// "read X: open X: no such file or directory" named the path twice), and
+// a missing one is still fs.ErrNotExist for callers.
+func TestLoadUnreadable(t *testing.T) {
+	dir := t.TempDir()
+	missing := filepath.Join(dir, "results.json")
+	_, err := Load(missing)
+	if err == nil || !errors.Is(err, fs.ErrNotExist) || strings.Count(err.Error(), missing) != 1 || !strings.Contains(err.Error(), missing+" does not exist: it was removed or renamed") {
+		t.Errorf("missing: %v", err)
+	}
+	if _, err := LoadWritten(missing, "ab"); err == nil || !strings.Contains(err.Error(), missing+" does not exist") {
+		t.Errorf("missing (LoadWritten): %v", err)
+	}
+	folder := filepath.Join(dir, "folder.json")
+	if err := os.Mkdir(folder, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Load(folder); err == nil || !strings.Contains(err.Error(), folder+" is a folder, not the results file a run writes") {
+		t.Errorf("folder: %v", err)
+	}
+	if os.Geteuid() != 0 {
+		locked := filepath.Join(dir, "locked.json")
+		if err := os.WriteFile(locked, []byte("{}"), 0o000); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := Load(locked); err == nil || !errors.Is(err, fs.ErrPermission) || !strings.Contains(err.Error(), "permission denied); give yourself read access") {
+			t.Errorf("not readable: %v", err)
+		}
+	}
 }

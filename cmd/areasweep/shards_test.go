@@ -404,8 +404,32 @@ func TestMergeRelativePaths(t *testing.T) {
 	elsewhere := t.TempDir()
 	out := filepath.Join(elsewhere, "merged")
 	se, code := run(elsewhere, "merge", "--quiet", "--out", out, filepath.Join(s.dir, "shards", "1"), filepath.Join(s.dir, "shards", "2"))
-	if code != 2 || !strings.Contains(se, "occ.csv") || !strings.Contains(se, "relative to the folder the shards ran in") || !strings.Contains(se, elsewhere) {
+	if code != 2 || !strings.Contains(se, "occ.csv") || !strings.Contains(se, "relative to the folder the shards ran in ("+s.dir+")") || !strings.Contains(se, elsewhere) ||
+		!strings.Contains(se, "run the merge from "+s.dir+",") {
 		t.Fatalf("merge from another folder: exit %d: %s", code, se)
+	}
+	// From another folder holding files of the same names, one of them
+	// not the file the shards read: the message names both folders, not
+	// the file as changed.
+	for _, f := range []string{"model.tif", "region.geojson", "occ.csv"} {
+		b, err := os.ReadFile(filepath.Join(s.dir, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f == "occ.csv" {
+			b = append(b, '\n')
+		}
+		if err := os.WriteFile(filepath.Join(elsewhere, f), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	se, code = run(elsewhere, "merge", "--quiet", "--out", out, filepath.Join(s.dir, "shards", "1"), filepath.Join(s.dir, "shards", "2"))
+	if code != 2 || !strings.Contains(se, "occ.csv is not the file the shards read") || !strings.Contains(se, "the shards ran in "+s.dir+" and read occ.csv there, this merge runs in "+elsewhere) ||
+		strings.Contains(se, "changed since") {
+		t.Fatalf("merge from another folder with other files: exit %d: %s", code, se)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("the refused merge created --out")
 	}
 	if _, err := os.Stat(out); err == nil {
 		t.Error("the refused merge created --out")
@@ -423,7 +447,7 @@ func TestMergeRelativePaths(t *testing.T) {
 	err := cmd.Run()
 	msg := strings.TrimSpace(gse.String())
 	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 2 || strings.Contains(msg, "\n") || strings.Contains(msg, "from :") ||
-		!strings.Contains(msg, "occ.csv, recorded relative to the folder the shards ran in, is not found") || !strings.Contains(msg, "the current folder no longer exists") {
+		!strings.Contains(msg, "occ.csv, recorded relative to the folder the shards ran in ("+s.dir+"), is not found") || !strings.Contains(msg, "the current folder no longer exists") {
 		t.Fatalf("merge from a removed folder: %v: %s", err, msg)
 	}
 	// From the right folder, with one input renamed since the shards ran:

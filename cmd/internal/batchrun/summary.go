@@ -54,6 +54,13 @@ func writeSummary(o *Options, studies []*study, errs []error) (string, error) {
 			rs[i].Err = errors.New(fault.UserText(errs[i]))
 			continue
 		}
+		if err != nil && errors.Is(err, fs.ErrNotExist) {
+			// Removed, marker left: the same command skips it.
+			errs[i] = &damagedError{fmt.Sprintf("%s was removed after the study finished, and its completion marker %s is still there, so the same command skips the study: restore the file from a copy, or remove %s and run the same command with --force to run the study again",
+				filepath.Join(st.dir, "results.json"), batch.MarkerPath(st.dir), batch.MarkerPath(st.dir))}
+			rs[i].Err = errors.New(fault.UserText(errs[i]))
+			continue
+		}
 		if err != nil {
 			// Finished (its completion marker is there), so the same
 			// command would skip it again: say how to run it again.

@@ -6,6 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"areasweep/cmd/internal/batch"
 )
 
 // TestSummaryStudyRemovedAfterFinishing: a finished study whose folder
@@ -62,5 +64,33 @@ func TestSummaryVersionWithoutResults(t *testing.T) {
 	}
 	if want := "Each study of the batch was to be run with areasweep 9.8.7 into its own folder"; !strings.Contains(string(b), want) {
 		t.Errorf("summary_methods.md lacks %q:\n%s", want, b)
+	}
+}
+
+// TestSummaryResultsRemovedMarkerLeft: a finished study whose results.json
+// alone was removed (its completion marker left, so the same command skips
+// it) was named with Go's words, "read DIR/results.json: open
+// DIR/results.json: no such file or directory", the path twice. The
+// message now says what happened and what runs the study again; still a
+// damaged study.
+func TestSummaryResultsRemovedMarkerLeft(t *testing.T) {
+	out := t.TempDir()
+	dir := filepath.Join(out, "s1")
+	if err := os.Mkdir(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(batch.MarkerPath(dir), []byte("{}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	errs := []error{nil}
+	if _, err := writeSummary(&Options{Out: out}, []*study{{id: "s1", dir: dir}}, errs); err != nil {
+		t.Fatal(err)
+	}
+	var de *damagedError
+	want := filepath.Join(dir, "results.json") + " was removed after the study finished, and its completion marker " + batch.MarkerPath(dir) +
+		" is still there, so the same command skips the study: restore the file from a copy, or remove " + batch.MarkerPath(dir) +
+		" and run the same command with --force to run the study again"
+	if errs[0] == nil || errs[0].Error() != want || !errors.As(errs[0], &de) {
+		t.Errorf("error %v, want %q (a damaged study)", errs[0], want)
 	}
 }

@@ -128,16 +128,17 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		if werr != nil {
 			// The current folder was removed: said by the caller
 			// (outdir.CwdGone), here not named as "".
-			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found: "+
-				"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0]))
+			return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in%s, is not found: "+
+				"run the merge from %s, or run the shards again with absolute paths", first.Source, missing[0], ranIn(rec.Dir), thatFolder(rec.Dir)))
 		}
 		if found {
 			return nil, fault.BadInput(fmt.Errorf("%s: the input %s is missing from %s, where the shards' other inputs are: it was removed or renamed since the shards ran; "+
 				"restore it, or run the shards again", first.Source, missing[0], here))
 		}
-		return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in, is not found from %s: "+
-			"run the merge from that folder, or run the shards again with absolute paths", first.Source, missing[0], here))
+		return nil, fault.BadInput(fmt.Errorf("%s: the input %s, recorded relative to the folder the shards ran in%s, is not found from %s: "+
+			"run the merge from %s, or run the shards again with absolute paths", first.Source, missing[0], ranIn(rec.Dir), here, thatFolder(rec.Dir)))
 	}
+	o.ShardDir = rec.Dir
 	s, err := Prepare(ctx, o, io, nil)
 	if err != nil {
 		return nil, err
@@ -153,6 +154,50 @@ func Merge(ctx context.Context, mo MergeOptions, io IO) (*report.Results, error)
 		}
 	}
 	return s.Finish(ctx)
+}
+
+// ranIn names the folder the shards ran in (recordedRun.Dir) after "the
+// folder the shards ran in": " (D)", or "" when not recorded.
+func ranIn(dir string) string {
+	if dir == "" {
+		return ""
+	}
+	return " (" + dir + ")"
+}
+
+// thatFolder names the folder the shards ran in for "run the merge from
+// ...": the folder, or "that folder" when not recorded.
+func thatFolder(dir string) string {
+	if dir == "" {
+		return "that folder"
+	}
+	return dir
+}
+
+// elsewhere says, for an input path p whose file differs from the one the
+// shards read, that a relative p was read from another folder than the
+// shards' (dir, recorded; "" when not), and what to do; "" when p is
+// absolute or the merge runs in that folder.
+func elsewhere(p, dir string) string {
+	if dir == "" || filepath.IsAbs(p) {
+		return ""
+	}
+	here, err := os.Getwd()
+	if err != nil || sameFolder(here, dir) {
+		return ""
+	}
+	return fmt.Sprintf("; the shards ran in %s and read %s there, this merge runs in %s: run the merge from %s (if the file there is unchanged), or run the shards again", dir, p, here, dir)
+}
+
+// sameFolder reports whether the folders a and b are one (symbolic links
+// resolved).
+func sameFolder(a, b string) bool {
+	if a == b {
+		return true
+	}
+	ra, ea := filepath.EvalSymlinks(a)
+	rb, eb := filepath.EvalSymlinks(b)
+	return ea == nil && eb == nil && ra == rb
 }
 
 // notRereadable refuses an input path p that a merge cannot read again
@@ -560,6 +605,9 @@ func (s *Study) checkExpectedInputs() error {
 		case i >= len(got) || i >= len(want) || got[i].Role != want[i].Name:
 			return fault.BadInput(fmt.Errorf("the inputs differ from the shards' (input %d); merge with the inputs the shards ran on", i+1))
 		case got[i].SHA256 != want[i].SHA256:
+			if why := elsewhere(got[i].Path, s.o.ShardDir); why != "" {
+				return fault.BadInput(fmt.Errorf("%s %s is not the file the shards read (SHA-256 %s, the shards read %s)%s", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12], why))
+			}
 			return fault.BadInput(fmt.Errorf("%s %s changed since the shards ran (SHA-256 %s, the shards read %s); restore the file or run the shards again", got[i].Role, got[i].Path, got[i].SHA256[:12], want[i].SHA256[:12]))
 		case sidecarsDigest(got[i]) != want[i].Sidecars:
 			return fault.BadInput(fmt.Errorf("%s %s: the files read with it (%s) are not those the shards read (a .prj, .dbf, .aux.xml or world file, or a virtual raster's source, added, removed or changed since); restore them or run the shards again", got[i].Role, got[i].Path, sidecarList(got[i])))

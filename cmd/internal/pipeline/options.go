@@ -43,6 +43,9 @@ type Options struct {
 	// MoreInputs are other files the run reads (a merge's partial files),
 	// kept away from --out like the inputs.
 	MoreInputs []string
+	// ShardDir is the folder a merge's shards ran in, when they recorded
+	// it: named when a relative input read here is not the file they read.
+	ShardDir string
 }
 
 // InputPaths lists every input file, for the check that --out holds none.

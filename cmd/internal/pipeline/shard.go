@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"os"
 	"path/filepath"
 	"strings"
 	"time"
@@ -69,6 +70,11 @@ type recordedRun struct {
 	TolerancePartialROC float64   `json:"tolerance_partial_roc"`
 	ToleranceOmission   float64   `json:"tolerance_omission"`
 	ToleranceBoyce      float64   `json:"tolerance_boyce"`
+	// Dir is the folder the shard ran in, from which its relative input
+	// paths are read: named by a merge that cannot find them or finds
+	// other files there. Not compared (shards given absolute paths may
+	// run anywhere), not a setting.
+	Dir string `json:"dir,omitempty"`
 }
 
 func recordRun(o *Options) recordedRun {
@@ -124,6 +130,7 @@ func (r recordedRun) compared() recordedRun {
 	c.Models, c.Nulls, c.Extra = names(r.Models), names(r.Nulls), names(r.Extra)
 	c.Occurrences, c.Region, c.Ecoregions = "", "", ""
 	c.Seed = 0
+	c.Dir = ""
 	return c
 }
 
@@ -202,7 +209,11 @@ func RunShard(ctx context.Context, o Options, io IO, i, n int) error {
 		s.logf("shard %d of %d: no grid row (more shards than the grid's %d rows); the partial file holds empty sums", i, n, s.grid.Height)
 	}
 	sh := &shardfile.Shard{Header: s.shardHeader(i, n, blocks), Width: s.grid.Width, Height: s.grid.Height}
-	if sh.Run, err = json.Marshal(recordRun(s.o)); err != nil {
+	run := recordRun(s.o)
+	if wd, werr := os.Getwd(); werr == nil {
+		run.Dir = wd
+	}
+	if sh.Run, err = json.Marshal(run); err != nil {
 		return fault.Internal(err)
 	}
 	for _, m := range s.fam.Members {

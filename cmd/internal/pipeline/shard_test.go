@@ -30,6 +30,7 @@ var notRecorded = map[string]string{
 	"Build":        "compared on its own (ShardHeader.Tool)",
 	"ExpectInputs": "set by the merge from the shards' headers",
 	"MoreInputs":   "set by the merge (the partial files)",
+	"ShardDir":     "set by the merge from the shards' recorded folder (recordedRun.Dir)",
 	"Shard":        "set by RunShard for the shard's own output folder; a merge is no shard",
 }
 
