@@ -9,6 +9,7 @@ import (
 	"slices"
 	"strings"
 	"testing"
+	"time"
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
@@ -539,4 +540,46 @@ func baseAndWhole(t *testing.T) *Results {
 	}
 	r.Extents = keep
 	return r
+}
+
+// TestMapLayoutNarrowStripEnds: a study strip much wider than tall (60 x
+// 1000 cells, and one row of 2000) whose map has one panel (one column,
+// 85 mm) never finished its report: trying four columns left a panel 16 pt
+// wide, its key wrapped into a negative width, and wordPieces appended
+// empty pieces forever (found by a run on such a grid, memory growing to
+// 13 GB). The layout now ends, in one column; wrapText with no room gives
+// a character a line and loses none.
+func TestMapLayoutNarrowStripEnds(t *testing.T) {
+	r := baseAndWhole(t)
+	groups := mapGroups(r)
+	s := "test point omitted at the minimum training_presence (1)"
+	widths := []vg.Length{-14, 0, 1}
+	type result struct {
+		l       mapLayout
+		wrapped []string
+	}
+	done := make(chan result, 1)
+	go func() {
+		var res result
+		for _, hw := range []float64{0.06, 0.0005} {
+			res.l = layoutMapPanels(r, groups, oneColumn, maxHeight-40*vg.Millimeter, hw)
+		}
+		for _, w := range widths {
+			res.wrapped = append(res.wrapped, wrapText(s, minFontPt, w))
+		}
+		done <- res
+	}()
+	select {
+	case res := <-done:
+		if res.l.cols != 1 || res.l.shown != len(groups) {
+			t.Errorf("%d columns showing %d, want 1 showing %d", res.l.cols, res.l.shown, len(groups))
+		}
+		for i, got := range res.wrapped {
+			if strings.ReplaceAll(strings.ReplaceAll(got, "\n", ""), " ", "") != strings.ReplaceAll(s, " ", "") {
+				t.Errorf("width %v: %q wrapped as %q", widths[i], s, got)
+			}
+		}
+	case <-time.After(30 * time.Second):
+		t.Fatal("the layout of a narrow strip's map, or wrapping into no room, did not end in 30 s")
+	}
 }

@@ -107,7 +107,9 @@ func wordPieces(word string, pt float64, w vg.Length) []string {
 	}
 	var out []string
 	for _, p := range pieces {
-		for textWidth(p, pt) > w {
+		// Each turn takes at least one character: a width below that of
+		// any character (or below zero) gives a character a piece.
+		for p != "" && textWidth(p, pt) > w {
 			n := 0
 			for i := range p {
 				if i > 0 && textWidth(p[:i], pt) > w {
@@ -121,7 +123,9 @@ func wordPieces(word string, pt float64, w vg.Length) []string {
 			out = append(out, p[:n])
 			p = p[n:]
 		}
-		out = append(out, p)
+		if p != "" {
+			out = append(out, p)
+		}
 	}
 	return out
 }
@@ -464,7 +468,9 @@ func wrapLegendRows(rows [][]legendItem, w vg.Length) [][]legendItem {
 		// the row's start (drawLegendRows); the 12 pt after it that
 		// legendItemWidth counts only parts items on one row.
 		room := w - vg.Points(4+26)
-		if len(row) != 1 || textWidth(row[0].label, minFontPt) <= room {
+		if len(row) != 1 || textWidth(row[0].label, minFontPt) <= room || room < textWidth("MW", minFontPt) {
+			// Fits, or no room to wrap into (a panel narrower than a
+			// key's thumbnail, which no layout keeps): as it is.
 			out = append(out, row)
 			continue
 		}
