@@ -322,6 +322,22 @@ func TestRunAgainstBruteForce(t *testing.T) {
 			t.Errorf("output %s missing: %v", f, err)
 		}
 	}
+	// run.log in pass order: each pass's scores before the next pass's
+	// lines, the null's sorting bias before the outputs.
+	logText, err := os.ReadFile(filepath.Join(out, "run.log"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	at := -1
+	for _, line := range []string{"\nm: read once", "\nm on base: AUC", "\nm: scores on", "\nsq: read once", "\nsq on base: AUC", "\nsq: scores on",
+		"\ndistance_null: computed cell by cell", "\ndistance_null (distance-only null) on base: AUC", "\ndistance_null: scores on", "\nsorting bias on base:",
+		"\nextents.gpkg written", "\nanalysis in"} {
+		i := strings.Index(string(logText), line)
+		if i <= at {
+			t.Errorf("run.log: %q at %d, after the line before it (%d):\n%s", line, i, at, logText)
+		}
+		at = i
+	}
 }
 
 // TestRunReproducible checks byte-identical results.json on 1 and 2 cores.
