@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"areasweep/extent/gdalmsg"
 )
 
 // A world map in an equal-area projection (Mollweide, Equal Earth,
@@ -86,7 +88,12 @@ var edgeCache geometryCache[*mapEdges]
 // Earth inside an outline that crosses the grid; nil otherwise.
 func (g *Grid) setMapEdges() {
 	g.edges = edgeCache.get(g, func() *mapEdges {
+		// Tracing the outline transforms points off the map of most
+		// CRSs (the antipode of an azimuthal one's centre): PROJ's
+		// message for each is expected here, not a fault of the run.
+		mark := gdalmsg.Mark()
 		xs, ys, tol, ok := g.worldOutline()
+		gdalmsg.Forget(mark, gdalmsg.OffDomain)
 		if !ok {
 			return nil
 		}

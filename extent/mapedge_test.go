@@ -4,8 +4,10 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strings"
 	"testing"
 
+	"areasweep/extent/gdalmsg"
 	"areasweep/extent/vocab"
 )
 
@@ -524,5 +526,36 @@ func TestCutCellsInnerRuns(t *testing.T) {
 				t.Fatal("no run inside the outline")
 			}
 		})
+	}
+}
+
+// TestMapOutlineProbeQuiet: looking for a world map's outline traces the
+// meridian lon0 + 180 through the antipode of an azimuthal projection's
+// centre, off its map: PROJ's message for that point reached run.log as
+// "library error: PROJ could not transform a point lying off the map of
+// its CRS" on every run on an LAEA Europe grid (EPSG:3035), where no cell
+// is off the map. The probe's expected failures are now forgotten; other
+// messages, and those recorded before it, are kept.
+func TestMapOutlineProbeQuiet(t *testing.T) {
+	gdalmsg.Install()
+	gdalmsg.Drain()
+	gdalmsg.Record(gdalmsg.Failure, 1, "Point outside of projection domain") // before: kept
+	// An origin no other test uses, so that the outline is not cached.
+	g, err := NewGrid(300, 300, [6]float64{4000123, 5000, 0, 3500000, 0, -5000}, "EPSG:3035")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer g.Close()
+	msgs, _ := gdalmsg.Drain()
+	if lines := gdalmsg.Lines(msgs); len(lines) != 1 || lines[0] != "library error: "+gdalmsg.OffDomain {
+		t.Errorf("messages after opening an LAEA Europe grid: %q, want only the one recorded before", lines)
+	}
+	// The probe does meet the antipode: transformed directly, it fails
+	// and its message is recorded.
+	xs, ys := []float64{10 - 180}, []float64{-52}
+	g.FromLonLat(xs, ys, xs, ys)
+	msgs, _ = gdalmsg.Drain()
+	if !math.IsNaN(xs[0]) || len(msgs) == 0 || !strings.HasPrefix(gdalmsg.Cause(msgs[0].Text), gdalmsg.OffDomain) {
+		t.Errorf("the antipode of LAEA Europe's centre: (%v, %v), messages %v", xs[0], ys[0], msgs)
 	}
 }

@@ -31,6 +31,7 @@ type Message struct {
 	Level Level
 	Code  int
 	Text  string
+	seq   uint64 // its place among all messages recorded (Mark)
 }
 
 // String renders the message as one line for a log.
@@ -75,6 +76,7 @@ var (
 	mu      sync.Mutex
 	kept    []Message
 	dropped int
+	next    uint64 // the seq of the next message recorded
 	once    sync.Once
 )
 
@@ -99,11 +101,38 @@ func Record(level Level, code int, text string) {
 	}
 	mu.Lock()
 	defer mu.Unlock()
+	m.seq = next
+	next++
 	if len(kept) >= maxKept {
 		dropped++
 		return
 	}
 	kept = append(kept, m)
+}
+
+// Mark returns the place of the next message to be recorded, for Forget.
+func Mark() uint64 {
+	mu.Lock()
+	defer mu.Unlock()
+	return next
+}
+
+// Forget drops the messages recorded since mark (Mark) that are of the
+// cause given (Cause of their text): those a call raised whose failure
+// the caller expected and handled, such as PROJ's OffDomain for a probe
+// that traces a CRS's map outline through points off the map. Messages
+// of other causes, and any recorded before mark, are kept.
+func Forget(mark uint64, cause string) {
+	mu.Lock()
+	defer mu.Unlock()
+	out := kept[:0]
+	for _, m := range kept {
+		if m.seq < mark || !strings.HasPrefix(Cause(m.Text), cause) {
+			out = append(out, m)
+		}
+	}
+	clear(kept[len(out):])
+	kept = out
 }
 
 // GoLog is the writer for Go's standard logger: a library written in Go

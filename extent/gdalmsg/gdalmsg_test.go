@@ -173,3 +173,24 @@ func TestLines(t *testing.T) {
 		}
 	}
 }
+
+// TestForget: the messages of one cause recorded after a Mark are
+// forgotten; those of other causes, and those recorded before the mark,
+// are kept in order (by construction).
+func TestForget(t *testing.T) {
+	Drain()
+	Record(Failure, 1, "Point outside of projection domain") // before the mark
+	mark := Mark()
+	Record(Failure, 1, "Point outside of projection domain")
+	Record(Warning, 1, "something else")
+	Record(Failure, 1, "Reprojection failed, err = 2050, further errors will be suppressed on the transform object")
+	Forget(mark, OffDomain)
+	Record(Failure, 1, "Point outside of projection domain") // after the Forget
+	got := Lines(must(Drain()))
+	want := []string{"library error: " + OffDomain + " (2 times)", "library warning: something else"}
+	if strings.Join(got, "\n") != strings.Join(want, "\n") {
+		t.Errorf("kept %q, want %q", got, want)
+	}
+}
+
+func must(m []Message, _ int) []Message { return m }
