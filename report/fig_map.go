@@ -897,6 +897,11 @@ func (m *mapScene) panel(gi int, g mapGroup, cell draw.Canvas, legendH vg.Length
 		return 0, err
 	}
 	fitAspect(p, mapC, m.west, m.south, m.east, m.north, m.aspect)
+	if m.r.Grid.Geographic {
+		// Latitude labels stack: thinned on a short map (degreeTicks).
+		da := p.DataCanvas(mapC)
+		p.Y.Tick.Marker = degreeTicks{H: da.Max.Y - da.Min.Y}
+	}
 	p.Draw(mapC)
 	da := p.DataCanvas(mapC)
 	legC.Min.X = da.Min.X

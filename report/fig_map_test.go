@@ -11,6 +11,7 @@ import (
 	"testing"
 	"time"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -581,5 +582,37 @@ func TestMapLayoutNarrowStripEnds(t *testing.T) {
 		}
 	case <-time.After(30 * time.Second):
 		t.Fatal("the layout of a narrow strip's map, or wrapping into no room, did not end in 30 s")
+	}
+}
+
+// TestLatitudeLabelsThinned: on the map of a strip one row tall (0.01°
+// over 20°) the latitude labels 49.8°N, 50.0°N and 50.2°N were drawn
+// over one another in a map 8 pt tall. With the axis's length given,
+// labels closer than 1.2 times their height are thinned, one alone (the
+// middle's) on an axis too short for two; a tall axis keeps them all.
+// Expected labels by construction (niceTicks' steps).
+func TestLatitudeLabelsThinned(t *testing.T) {
+	labels := func(ts []plot.Tick) []string {
+		var out []string
+		for _, tk := range ts {
+			if tk.Label != "" {
+				out = append(out, tk.Label)
+			}
+		}
+		return out
+	}
+	for _, tc := range []struct {
+		h    vg.Length
+		want string
+	}{
+		{0, "49.8°N 49.9°N 50.0°N 50.1°N 50.2°N"},   // no length: as before
+		{200, "49.8°N 49.9°N 50.0°N 50.1°N 50.2°N"}, // 50 pt apart
+		{30, "49.8°N 50.0°N 50.2°N"},                // 7.5 pt apart: every 2nd
+		{8, "50.0°N"},                               // too short for two
+	} {
+		got := strings.Join(labels(degreeTicks{H: tc.h}.Ticks(49.79, 50.21)), " ")
+		if got != tc.want {
+			t.Errorf("axis %v pt: labels %q, want %q", float64(tc.h), got, tc.want)
+		}
 	}
 }

@@ -235,14 +235,42 @@ func (lt logTicks) spread(ts []plot.Tick, min, max float64) {
 }
 
 // degreeTicks labels longitude (Lon) or latitude with hemisphere letters:
-// 150°W, 0°, 30°S.
-type degreeTicks struct{ Lon bool }
+// 150°W, 0°, 30°S. With H, the axis's length, set (a latitude axis, whose
+// labels stack), labels of size minFontPt closer than 1.2 times their
+// height are thinned: every k-th is kept, the one nearest the middle
+// alone on an axis too short for two (a map of a strip a few cells tall,
+// whose labels were drawn over each other).
+type degreeTicks struct {
+	Lon bool
+	H   vg.Length
+}
 
 // Ticks implements plot.Ticker.
 func (d degreeTicks) Ticks(min, max float64) []plot.Tick {
 	ts := niceTicks{}.Ticks(min, max)
 	for i := range ts {
 		ts[i].Label = degreeLabel(ts[i].Value, ts[i].Label, d.Lon)
+	}
+	if d.H > 0 && len(ts) > 1 && max > min {
+		gap := float64(d.H) * (ts[1].Value - ts[0].Value) / (max - min) // points between ticks
+		need := 1.2 * minFontPt
+		if k := int(math.Ceil(need / gap)); k > 1 {
+			if float64(d.H) < 2*need {
+				// One label: the tick nearest the middle.
+				mid, best := (min+max)/2, 0
+				for i, t := range ts {
+					if math.Abs(t.Value-mid) < math.Abs(ts[best].Value-mid) {
+						best = i
+					}
+				}
+				k, ts = 1, []plot.Tick{ts[best]}
+			}
+			for i := range ts {
+				if i%k != 0 {
+					ts[i].Label = ""
+				}
+			}
+		}
 	}
 	return ts
 }
