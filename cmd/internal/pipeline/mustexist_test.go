@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -314,6 +315,40 @@ func TestMustExistLayerFolder(t *testing.T) {
 		}
 		if strings.Contains(err.Error(), tc.not) {
 			t.Errorf("%s: %q names %q", tc.what, err, tc.not)
+		}
+	}
+}
+
+// TestLongRasterPath: a model raster at a path of 2,100 bytes (valid on
+// Linux, up to 4,096) was refused as "has no geotransform": GDAL names the
+// files beside a raster in a buffer of 2,048 bytes and opened it without
+// its georeferencing. It is now refused for what it is, naming the length
+// and what to do; a path of 2,000 bytes passes this check.
+func TestLongRasterPath(t *testing.T) {
+	for _, n := range []int{2000, 2100} {
+		dir := t.TempDir()
+		p := dir
+		for len(p)+210 < n {
+			p = filepath.Join(p, strings.Repeat("d", 200))
+		}
+		p = filepath.Join(p, strings.Repeat("e", max(1, n-len(p)-8)))
+		if err := os.MkdirAll(p, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join(p, "m1.tif")
+		if len(path) != n {
+			t.Fatalf("path of %d bytes, want %d", len(path), n)
+		}
+		if err := os.WriteFile(path, []byte("II*\x00 not read here"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		err := mustExist("model m1", path)
+		long := err != nil && fault.IsBadInput(err) && strings.Contains(err.Error(), fmt.Sprintf("is %d bytes long", n)) && strings.Contains(err.Error(), "give a shorter path")
+		if long != (n > maxRasterPath) {
+			t.Errorf("a model at a path of %d bytes: %v", n, err)
+		}
+		if err := mustExist("occurrences", path); err != nil && strings.Contains(err.Error(), "bytes long") {
+			t.Errorf("an occurrence table (read without GDAL) at %d bytes refused: %v", n, err)
 		}
 	}
 }

@@ -471,6 +471,21 @@ func folderFiles(what, dir string) string {
 	return fmt.Sprintf("; give %s itself, e.g. %s", kind, strings.Join(found, " or "))
 }
 
+// maxRasterPath is the longest path of a raster input: our cut-off, below
+// the 2,048 bytes of GDAL's buffer for file names by the longest suffix
+// it adds (".aux.xml" and its kin), with room to spare (measured with
+// GDAL 3.6: a GeoTIFF at 2,031 bytes opens whole, one at 2,041 without
+// its georeferencing).
+const maxRasterPath = 2000
+
+// shortPath shows a long path by its first and last 60 bytes.
+func shortPath(p string) string {
+	if len(p) <= 160 {
+		return p
+	}
+	return p[:60] + "..." + p[len(p)-60:]
+}
+
 func mustExist(what, path string) error {
 	if strings.ContainsAny(path, "\n\r") {
 		// Every message naming the file, and run.log, would break
@@ -519,6 +534,14 @@ func mustExist(what, path string) error {
 		// raster or layer by seeking in it: the occurrence table alone is
 		// read as a stream (a shell's <(...) included).
 		return fault.BadInput(fmt.Errorf("%s: %s is not a regular file (a named pipe, device or socket); GDAL reads rasters and layers from files: give the path of the file", what, path))
+	}
+	if (strings.HasPrefix(what, "model ") || strings.HasPrefix(what, "null ")) && len(path) > maxRasterPath {
+		// GDAL forms the names of the files beside a raster (its
+		// .aux.xml, .ovr, world file) in a buffer of 2,048 bytes; past
+		// it the raster opened without its georeferencing, and the run
+		// said "has no geotransform".
+		return fault.BadInput(fmt.Errorf("%s: the path %s is %d bytes long; GDAL reads a raster at a path of at most about 2,000 bytes (it names the files beside it, such as its .aux.xml, in a buffer of 2,048): "+
+			"give a shorter path (move the file, or link it from a short folder, e.g. ln -s %s /tmp/%s)", what, shortPath(path), len(path), shellArg(path), filepath.Base(path)))
 	}
 	if st.Mode().IsRegular() {
 		f, err := os.Open(path)
