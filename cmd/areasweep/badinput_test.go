@@ -512,7 +512,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		many[i] = fmt.Sprint(i + 1)
 	}
 	tooMany := strings.Join(many[:extent.MaxMembers-2], ",")
-	tooManyMsg := fmt.Sprintf("more than %d extents", extent.MaxMembers)
+	tooManyMsg := fmt.Sprintf("more extents than the %d a run holds (base and whole raster 2, region buffers 10", extent.MaxMembers)
 	hundred := strings.Join(many[:100], ",")
 	manyThresholds := make([]string, 1001)
 	for i := range manyThresholds {

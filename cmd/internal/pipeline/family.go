@@ -1,7 +1,9 @@
 package pipeline
 
 import (
+	"errors"
 	"fmt"
+	"strings"
 	"time"
 
 	"areasweep/cmd/internal/fault"
@@ -47,9 +49,25 @@ func (s *Study) buildFamily() error {
 	s.logf("building the extent family")
 	t0 := time.Now()
 	fam, err := extent.Build(s.grid, s.valid, spec, trainCells, testCells)
+	if errors.Is(err, extent.ErrTooManyMembers) {
+		// Name what asked for them: extra layers as much as buffers.
+		parts := []string{"base and whole raster 2"}
+		for _, c := range []struct {
+			what string
+			n    int
+		}{{"region buffers", len(sortedUniqueNonZero(o.RegionBuffers))}, {"point buffers", len(o.PointBuffers)}, {"hull and hull buffers", len(o.HullBuffers)}, {"--extra layers", len(o.Extra)}} {
+			if c.n > 0 {
+				parts = append(parts, fmt.Sprintf("%s %d", c.what, c.n))
+			}
+		}
+		if o.Ecoregions != "" {
+			parts = append(parts, "ecoregion extents up to 4")
+		}
+		return fault.BadInput(fmt.Errorf("the settings ask for more extents than the %d a run holds (%s, about %d in all): give fewer buffer distances or --extra layers, or split them over several runs",
+			extent.MaxMembers, strings.Join(parts, ", "), 2+len(sortedUniqueNonZero(o.RegionBuffers))+len(o.PointBuffers)+len(o.HullBuffers)+len(o.Extra)))
+	}
 	if err != nil {
-		// Every failure here comes from the region, point or polygon inputs
-		// or from settings asking for too many extents.
+		// Every failure here comes from the region, point or polygon inputs.
 		return fault.BadInput(err)
 	}
 	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
