@@ -286,6 +286,8 @@ func TestBadRastersAndLayers(t *testing.T) {
 			words: []string{"wkt.csv", "has no CRS", "ogr2ogr -a_srs EPSG:4326 OUT.gpkg " + filepath.Join(f.dir, "wkt.csv")}},
 		{name: "region smaller than a cell", args: f.withRegion(f.file("tiny.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[13.01,43.01],[13.05,43.01],[13.05,43.05],[13.01,43.05],[13.01,43.01]]]}`, ``))), code: 2,
 			words: []string{"tiny.geojson lies over", "holds no cell's centre", "smaller or thinner than the cells of 0.25 x 0.25"}},
+		{name: "region whose hole holds the raster", args: f.withRegion(f.file("bighole.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[0,30],[40,30],[40,60],[0,60],[0,30]],[[5,35],[5,55],[30,55],[30,35],[5,35]]]}`, ``))), code: 2,
+			words: []string{"bighole.geojson lies over", "every cell's centre it surrounds lies in one of its holes", "the raster lies inside a hole of the region"}},
 		{name: "region over cells without data only", args: f.withRegion(f.file("nodataonly.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``))), code: 2,
 			words: []string{"nodataonly.geojson covers no cell with data", "cells without data only"}},
 		{name: "extents: region over cells without data only", args: append([]string{"extents"}, f.withRegion(f.file("nodataonly2.geojson", polygonJSON(`{"type":"Polygon","coordinates":[[[21.1,40.1],[21.9,40.1],[21.9,40.9],[21.1,40.9],[21.1,40.1]]]}`, ``)))[1:]...), code: 2,

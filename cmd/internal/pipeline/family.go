@@ -118,7 +118,8 @@ func (s *Study) Clip(valid *extent.Valid) error {
 // when the cells without data were left out): a region lying over the
 // raster that holds cells' centres (the rule of Fill) holds cells without
 // data only; one that holds none is smaller or thinner than a cell; one
-// elsewhere is in another area or CRS. Whether it holds centres is asked
+// elsewhere is in another area or CRS; one whose outlines hold centres
+// that its holes all take has the raster in a hole. Whether it holds centres is asked
 // of the region itself: extents knows the cells with data before it
 // builds, so its base comes out empty either way.
 func (s *Study) noOverlap(valid string) error {
@@ -127,6 +128,16 @@ func (s *Study) noOverlap(valid string) error {
 	if len(s.fam.Base.Grid) > 0 && b.Max[0] > gb[0] && b.Min[0] < gb[2] && b.Max[1] > gb[1] && b.Min[1] < gb[3] {
 		if holdsCentre(g, s.fam.Base.Grid) {
 			return fmt.Errorf("%w: %s covers no cell with data of %s (it lies over cells without data only); check that this is the region you meant", extent.ErrNoOverlap, s.o.Region, s.models[0].Path)
+		}
+		var outer orb.MultiPolygon
+		for _, p := range s.fam.Base.Grid {
+			if len(p) > 0 {
+				outer = append(outer, orb.Polygon{p[0]})
+			}
+		}
+		if holdsCentre(g, outer) {
+			// Its outlines hold cells' centres, its holes take them all.
+			return fmt.Errorf("%w: %s lies over %s but every cell's centre it surrounds lies in one of its holes (interior rings): the raster lies inside a hole of the region; check that this is the region you meant", extent.ErrNoOverlap, s.o.Region, s.models[0].Path)
 		}
 		return fmt.Errorf("%w: %s lies over %s but holds no cell's centre (a cell belongs to a polygon when its centre does): it is smaller or thinner than the cells of %g x %g; draw the region larger than a cell", extent.ErrNoOverlap, s.o.Region, s.models[0].Path, g.GeoTransform[1], -g.GeoTransform[5])
 	}
