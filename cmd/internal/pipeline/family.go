@@ -63,8 +63,8 @@ func (s *Study) buildFamily() error {
 		if o.Ecoregions != "" {
 			parts = append(parts, "ecoregion extents up to 4")
 		}
-		return fault.BadInput(fmt.Errorf("the settings ask for more extents than the %d a run holds (%s, about %d in all): give fewer buffer distances or --extra layers, or split them over several runs",
-			extent.MaxMembers, strings.Join(parts, ", "), 2+len(sortedUniqueNonZero(o.RegionBuffers))+len(o.PointBuffers)+len(o.HullBuffers)+len(o.Extra)))
+		return fault.BadInput(fmt.Errorf("the settings ask for more extents than the %d a run holds (%s, up to %d in all): give fewer buffer distances or --extra layers, or split them over several runs",
+			extent.MaxMembers, strings.Join(parts, ", "), o.requestedExtents()))
 	}
 	if err != nil {
 		// Every failure here comes from the region, point or polygon inputs.

@@ -122,11 +122,19 @@ func (o *Options) workers() int {
 // maxExtents is an upper bound on the members the settings can make,
 // before the family is built.
 func (o *Options) maxExtents() int {
+	return min(o.requestedExtents(), extent.MaxMembers)
+}
+
+// requestedExtents is an upper bound on the members the settings ask for,
+// the family's cap aside: base and whole raster, each distinct nonzero
+// region buffer, each point and hull buffer, each extra layer, and up to
+// 4 ecoregion members.
+func (o *Options) requestedExtents() int {
 	n := 2 + len(sortedUniqueNonZero(o.RegionBuffers)) + len(o.PointBuffers) + len(o.HullBuffers) + len(o.Extra)
 	if o.Ecoregions != "" {
 		n += 4
 	}
-	return min(n, extent.MaxMembers)
+	return n
 }
 
 func sortedUniqueNonZero(v []float64) map[float64]bool {
