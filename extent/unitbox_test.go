@@ -55,8 +55,8 @@ func TestUnitBoxNeverHidesAPoint(t *testing.T) {
 				v := p[0][rng.IntN(len(p[0]))]
 				x, y = v[0], v[1]
 			case 1: // near the envelope's edges
-				x = box.minX + (box.maxX-box.minX)*float64(rng.IntN(2)) + 0.1*(rng.Float64()-0.5)
-				y = box.minY + (box.maxY-box.minY)*rng.Float64()
+				x = box.Min[0] + (box.Max[0]-box.Min[0])*float64(rng.IntN(2)) + 0.1*(rng.Float64()-0.5)
+				y = box.Min[1] + (box.Max[1]-box.Min[1])*rng.Float64()
 			default:
 				x, y = cx-3*r+6*r*rng.Float64(), cy-3*r+6*r*rng.Float64()
 			}
@@ -64,7 +64,7 @@ func TestUnitBoxNeverHidesAPoint(t *testing.T) {
 			if in {
 				inside++
 			}
-			if in && !box.holds(g, x, y) {
+			if in && !boxHolds(box, g, x, y) {
 				hidden++
 				t.Errorf("(%v, %v) is inside the unit but outside its box %+v", x, y, box)
 			}
