@@ -316,6 +316,22 @@ func TestBadRastersAndLayers(t *testing.T) {
 		{name: "region shapefile without .shx", args: f.withRegion(noSHX), code: 2, words: []string{"region", "noshx.shp", "noshx.shx is not beside it", "must stay together"}},
 		{name: "ecoregions shapefile without .dbf", args: f.run("--ecoregions", noDBF, "--ecoregion-field", "unit"), code: 2, words: []string{"ecoregions", "nodbf.shp", `no field "unit"`, "nodbf.dbf is not beside it"}},
 	})
+
+	// A region whose built base holds no cell is refused before the
+	// family's warnings, which would only say of each empty member what
+	// the refusal says (all 11 were printed first). Run without --quiet,
+	// so that they would show.
+	t.Run("no extent warnings before the refusal", func(t *testing.T) {
+		args := append(f.withRegion(filepath.Join(f.dir, "bighole.geojson")), "--out", filepath.Join(outs, "loud"))
+		cmd := exec.Command(areasweepBin, args...)
+		var se strings.Builder
+		cmd.Stderr = &se
+		code := exitCode(cmd.Run())
+		checkRefusal(t, code, 2, se.String(), []string{"bighole.geojson", "inside a hole of the region"})
+		if strings.Contains(se.String(), "warning: extent") {
+			t.Errorf("stderr warns of the extents before the refusal: %s", se.String())
+		}
+	})
 }
 
 // writeEHdr writes a Float32 ESRI BIL of the small study's values with

@@ -72,13 +72,15 @@ func (s *Study) buildFamily() error {
 	}
 	s.logf("extent family: %d members built in %.2f s", len(fam.Members), time.Since(t0).Seconds())
 	s.fam = fam
+	if fam.Members[0].Cells == 0 {
+		// Refused before the warnings: the empty members' warnings would
+		// only repeat the refusal.
+		return fault.BadInput(s.noOverlap(""))
+	}
 	for _, w := range fam.Warnings {
 		s.warn(w)
 	}
 	s.nWarn = len(fam.Warnings)
-	if fam.Members[0].Cells == 0 {
-		return fault.BadInput(s.noOverlap(""))
-	}
 	if s.valid != nil {
 		if err := s.recordExtents(); err != nil {
 			return err
@@ -107,6 +109,9 @@ func (s *Study) Clip(valid *extent.Valid) error {
 	_, testCells, _ := s.scoredPoints(vocab.RoleTest)
 	s.valid = valid
 	s.fam.Clip(valid, trainCells, testCells)
+	if s.fam.Members[0].Cells == 0 {
+		return fault.BadInput(s.noOverlap("valid "))
+	}
 	for _, w := range s.fam.Warnings[s.nWarn:] {
 		s.warn(w)
 	}
