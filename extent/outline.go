@@ -375,8 +375,8 @@ func outlinePolygons(rings []tracedRing) [][][][2]int32 {
 
 // Outline returns member k as polygons in the grid CRS: the union of its
 // cells, traced along cell edges from its row runs.
-func (f *Family) Outline(k int) (orb.MultiPolygon, error) {
-	return f.outline(k, &outlineScratch{}), nil
+func (f *Family) Outline(k int) orb.MultiPolygon {
+	return f.outline(k, &outlineScratch{})
 }
 
 // outline is Outline in sc's buffers: its rings lie in sc.ring, valid
