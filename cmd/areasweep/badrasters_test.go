@@ -112,6 +112,29 @@ func TestBadRastersAndLayers(t *testing.T) {
 		}
 		ds.Close()
 	}
+	// Scales that take stored values beyond the largest float64: at
+	// every cell (met when the points are sampled), and on the last row
+	// only, away from the points (met by the pass). Both stopped the run
+	// as a bug (exit 3).
+	scaled := func(name string, fn func(i int) float64, scale float64) string {
+		p := f.rasterWith(t, name, f.gt, wgs84WKT, fn)
+		ds, err := godal.Open(p, godal.Update())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Bands()[0].SetScaleOffset(scale, 0); err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+		return p
+	}
+	scaleHuge := scaled("scalehuge.tif", func(i int) float64 { return 2 + ridge(i) }, 1e308)
+	scaleHugeLastRow := scaled("scalehugerow.tif", func(i int) float64 {
+		if i >= (f.h-1)*f.w {
+			return 1e30
+		}
+		return 1 + ridge(i)
+	}, 1e300)
 	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
 	const marsWKT = `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`
 	mars := f.rasterWith(t, "mars.tif", f.gt, marsWKT, ridge)
@@ -302,6 +325,8 @@ func TestBadRastersAndLayers(t *testing.T) {
 		{name: "null of complex numbers", args: f.run("--null", "n="+complexModel), code: 2, words: []string{"null n", "complex.tif", "complex numbers"}},
 		{name: "extents: model of complex numbers", args: append([]string{"extents"}, f.withModel(complexModel)[1:]...), code: 2, words: []string{"model m", "complex numbers"}},
 		{name: "model with a scale of 0", args: f.withModel(scaleZero), code: 2, words: []string{"model m", "scale0.tif", "scale of 0", "gdal_translate -a_scale 1"}},
+		{name: "model whose scale overflows at the points", args: f.withModel(scaleHuge), code: 2, words: []string{"model m", "scalehuge.tif declares a scale of 1e+308", "beyond the largest number a float64 holds", "gdal_translate -a_scale"}},
+		{name: "model whose scale overflows away from the points", args: f.withModel(scaleHugeLastRow), code: 2, words: []string{"model m", "scalehugerow.tif declares a scale of 1e+300", "its stored value 1.0000000150474662e+30", "beyond the largest number"}},
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
 		{name: "region on Mars", args: f.withRegion(marsRegion), code: 2, words: []string{"region: ", "mars.gpkg: cannot be reprojected to the raster CRS", "same celestial body", "check that the layer's CRS is right"}},
 		{name: "extra layer on Mars", args: f.run("--extra", "x="+marsRegion), code: 2, words: []string{"extra x: ", "mars.gpkg: cannot be reprojected"}},

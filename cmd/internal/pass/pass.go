@@ -260,11 +260,30 @@ func BandProblem(b godal.Band) string {
 	case st.Scale == 0:
 		return fmt.Sprintf("declares a scale of 0 for its band, so every cell would read as its offset (%g); give the raster the scale it should have (e.g. gdal_translate -a_scale 1 IN OUT)", st.Offset)
 	case math.IsNaN(st.Scale) || math.IsInf(st.Scale, 0):
-		return fmt.Sprintf("declares a scale of %g for its band; give the raster a finite scale (e.g. gdal_translate -a_scale 1 IN OUT)", st.Scale)
+		return fmt.Sprintf("declares a scale that is %s for its band; give the raster a finite scale (e.g. gdal_translate -a_scale 1 IN OUT)", notFinite(st.Scale))
 	case math.IsNaN(st.Offset) || math.IsInf(st.Offset, 0):
-		return fmt.Sprintf("declares an offset of %g for its band; give the raster a finite offset (e.g. gdal_translate -a_offset 0 IN OUT)", st.Offset)
+		return fmt.Sprintf("declares an offset that is %s for its band; give the raster a finite offset (e.g. gdal_translate -a_offset 0 IN OUT)", notFinite(st.Offset))
 	}
 	return ""
+}
+
+// notFinite words a NaN or infinite number for a message.
+func notFinite(v float64) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "infinite"
+	case math.IsInf(v, -1):
+		return "minus infinity"
+	}
+	return "not a number (NaN)"
+}
+
+// scaleOverflow is the error of a stored value v that the band's scale
+// and offset take beyond the largest float64 (about 1.8e308): a model
+// value no score can rank.
+func (r *Raster) scaleOverflow(v float64) error {
+	return fmt.Errorf("pass: %s declares a scale of %g and an offset of %g for its band, which take its stored value %g beyond the largest number a float64 holds (about 1.8e308); give the raster the scale and offset it should have (e.g. gdal_translate -a_scale 1 -a_offset 0 IN OUT)",
+		r.Path, r.scale, r.offset, v)
 }
 
 // decode turns stored values into model values in place: a signed Byte
@@ -272,8 +291,10 @@ func BandProblem(b godal.Band) string {
 // infinite values become NaN, the others are scaled and offset when the
 // band declares a scale or offset. A zero is always +0: -0 and +0 are one
 // value, and keeping both would let the order in which blocks reach a
-// worker decide which one a minimum or maximum reports.
-func (r *Raster) decode(buf []float64) {
+// worker decide which one a minimum or maximum reports. A finite stored
+// value that the scale and offset make infinite is an error
+// (scaleOverflow).
+func (r *Raster) decode(buf []float64) error {
 	if r.signedByte {
 		for i, v := range buf {
 			if v > 127 {
@@ -292,7 +313,7 @@ func (r *Raster) decode(buf []float64) {
 				buf[i] = 0 // -0 becomes +0
 			}
 		}
-		return
+		return nil
 	}
 	for i, v := range buf {
 		switch {
@@ -300,11 +321,15 @@ func (r *Raster) decode(buf []float64) {
 			buf[i] = math.NaN()
 		default:
 			buf[i] = v*r.scale + r.offset
+			if math.IsInf(buf[i], 0) {
+				return r.scaleOverflow(v)
+			}
 		}
 		if buf[i] == 0 {
 			buf[i] = 0 // -0 becomes +0
 		}
 	}
+	return nil
 }
 
 // NoData returns the nodata value the raster's cells are compared with
@@ -471,7 +496,10 @@ func (r *Raster) Sample(g *extent.Grid, cells []int) ([]float64, []bool, error) 
 				for _, i := range group {
 					c := cells[i]
 					one[0] = kb.at((c/g.Width-y0)*b.w + c%g.Width - x0)
-					r.decode(one)
+					if err := r.decode(one); err != nil {
+						errs[w] = err
+						return
+					}
 					vals[i], ok[i] = one[0], r.valid(one[0])
 				}
 				if keep {
@@ -572,8 +600,15 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (*ext
 	go func() { errc <- r.each(blocks, free) }()
 	done, total := 0, r.Blocks()
 	var runs, off []int32
+	var bad error // a value the scale makes infinite: the rest is only drained
 	for b := range blocks {
-		r.decode(b.buf)
+		if bad == nil {
+			bad = r.decode(b.buf)
+		}
+		if bad != nil {
+			free <- b.buf
+			continue
+		}
 		runs, off = runs[:0], off[:0]
 		for y := 0; y < b.h; y++ {
 			from := len(runs)
@@ -591,7 +626,10 @@ func (r *Raster) ReadValid(g *extent.Grid, progress func(done, total int)) (*ext
 			progress(done, total)
 		}
 	}
-	return v, <-errc
+	if err := <-errc; err != nil {
+		return v, err
+	}
+	return v, bad
 }
 
 // Stats are whole-raster facts gathered in the pass.
@@ -737,7 +775,7 @@ type plan struct {
 	open                          func() (Source, error)
 	// decode turns stored values into model values in place, NaN for no
 	// value.
-	decode func(buf []float64)
+	decode func(buf []float64) error
 	// kept, when set, holds blocks already read (by Sample): the pass
 	// takes those instead of reading them.
 	kept *keptBlocks
@@ -925,7 +963,9 @@ func (r *passRun) block(i int, src Source, ws *workerState, accs []*metrics.Accu
 			return err
 		}
 	}
-	p.decode(b.buf)
+	if err := p.decode(b.buf); err != nil {
+		return err
+	}
 	if sh, ok := src.(shower); ok && (opt.Preview != nil || opt.Rows != nil) {
 		// Only the preview and the row hook see them.
 		b.shown = sh.shownValues(b.w * b.h)

@@ -26,7 +26,9 @@ func (r *Raster) HasData(maxCells int) (any, known bool, err error) {
 		if err := src.ReadBlock(b.x0, b.y0, b.w, b.h, buf); err != nil {
 			return false, false, err
 		}
-		r.decode(buf)
+		if err := r.decode(buf); err != nil {
+			return false, false, err
+		}
 		for _, v := range buf {
 			if r.valid(v) {
 				return true, true, nil

@@ -454,7 +454,7 @@ func (v *Virtual) Score(g *extent.Grid, fam *extent.Family, layout *metrics.Layo
 		}
 		return src, nil
 	}
-	p := plan{width: g.Width, height: g.Height, blockW: VirtualBlock, blockH: VirtualBlock, open: open, decode: func([]float64) {}, midpoints: bf != nil}
+	p := plan{width: g.Width, height: g.Height, blockW: VirtualBlock, blockH: VirtualBlock, open: open, decode: func([]float64) error { return nil }, midpoints: bf != nil}
 	return score(p, g, fam, groups, layout, opt)
 }
 
