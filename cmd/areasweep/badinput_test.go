@@ -564,6 +564,9 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"unknown flag", []string{"run", "--modle", "x"}, 2, []string{"unknown flag: --modle"}, "", ""},
 		{"seed negative", f.run("--seed", "-1"), 2, []string{"--seed", `"-1" is not a whole number of 0 or more`}, "", ""},
 		{"iterations not a whole number", f.run("--iterations", "1.5"), 2, []string{"--iterations", `"1.5" is not a whole number`}, "", ""},
+		// Base prefixes were read as Go reads them (0x10 = 16, 0701 = 449).
+		{"seed in hexadecimal", f.run("--seed", "0x10"), 2, []string{"--seed", `"0x10" is not a whole number of 0 or more in decimal digits`}, "", ""},
+		{"iterations with an underscore", f.run("--iterations", "1_000"), 2, []string{"--iterations", `"1_000" is not a whole number in decimal digits`}, "", ""},
 		{"demo seed out of range", []string{"demo", "--scenario-seed", "99999999999999999999"}, 2, []string{"--scenario-seed", "is out of range", "demo --help"}, "", ""},
 		{"report given two folders", []string{"report", f.outs, f.outs}, 2, []string{"'areasweep report' takes one argument, DIR (got 2: ", "report --help"}, "", ""},
 		{"occurrences crs unknown", f.run("--occurrences-crs", "EPSG:999999"), 2, []string{"--occurrences-crs", "EPSG:999999"}, "", ""},

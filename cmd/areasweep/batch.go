@@ -113,12 +113,12 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 	}
 	f := cmd.Flags()
 	f.StringVar(&opts.Out, "out", "", "output `DIR`: one folder per study, and the summary")
-	f.IntVar(&opts.Jobs, "jobs", 1, "studies run at once, `N` (each with all cores / N scoring workers; the results do not depend on it)")
+	wholeVar(f, &opts.Jobs, "jobs", 1, "studies run at once, `N` (each with all cores / N scoring workers; the results do not depend on it)")
 	f.StringVar(&memory, "memory", "", "memory `SIZE` the running studies may need together, e.g. 8G or 512M (default: 80% of the available memory); with --slurm, the memory each task asks for (default: the largest study's estimate plus headroom)")
 	f.StringSliceVar(&opts.Only, "only", nil, "run only these study `IDS` (comma-separated) and write no summary; for scheduler tasks")
 	f.BoolVar(&opts.SummaryOnly, "summary-only", false, "run no study: merge the shards of studies whose shards all finished, then write the summary from the finished study folders")
-	f.IntVar(&opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
-	f.IntVar(&opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
+	wholeVar(f, &opts.Shards, "shards", 1, "split each study into `N` shards of grid rows (run --shard), merged into the study's folder")
+	wholeVar(f, &opts.Shard, "shard", 0, "with --only ID and --shards N: run only shard `I` of that study and no merge (a scheduler task)")
 	f.BoolVar(&opts.Force, "force", false, "re-run studies whose table row or input files changed since they finished, and run studies into folders that exist without a completion marker (replacing areasweep's files in them, keeping any other file); never past an input file that cannot be read")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress lines on standard error")
 	f.BoolVar(&opts.Template, "template", false, "print an example study table (CSV) and exit")
@@ -175,8 +175,8 @@ func bindSlurmFlags(f *pflag.FlagSet, o *batchrun.SlurmOptions) {
 	f.BoolVar(&o.Wait, "wait", false, "with --submit: wait until the jobs have left the queue and report the tasks that did not finish")
 	f.StringVar(&o.Partition, "partition", "", "with --slurm: SLURM `PARTITION` of the jobs (default: the cluster's)")
 	f.StringVar(&o.TimeLimit, "time", "", "with --slurm: time limit `TIME` per task, e.g. 02:00:00 (default: the partition's)")
-	f.IntVar(&o.CPUs, "cpus-per-task", 1, "with --slurm: CPUs per task `N` (each study uses them all)")
-	f.IntVar(&o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
+	wholeVar(f, &o.CPUs, "cpus-per-task", 1, "with --slurm: CPUs per task `N` (each study uses them all)")
+	wholeVar(f, &o.MaxParallel, "max-parallel", 0, "with --slurm: at most `K` tasks at once (0: no limit)")
 }
 
 // validateSlurm checks the flags of batch --slurm; cpusGiven says

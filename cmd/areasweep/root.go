@@ -265,7 +265,7 @@ reports how much of each score comes from the extent rather than from the model.
 		// pflag quotes the value in full (twice): a long one is cut
 		// (cutQuoted) once the message is in our words.
 		if m := numberError.FindStringSubmatch(err.Error()); m != nil {
-			what := map[string]string{"Uint": "a whole number of 0 or more", "Int": "a whole number", "Float": "a number", "Bool": "true or false"}[m[2]]
+			what := map[string]string{"Uint": "a whole number of 0 or more in decimal digits", "Int": "a whole number in decimal digits", "Float": "a number", "Bool": "true or false"}[m[2]]
 			why := "is not " + what
 			if m[4] == "value out of range" {
 				why = "is out of range"

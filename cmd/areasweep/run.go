@@ -149,9 +149,16 @@ func floatListVar(fs *pflag.FlagSet, p *[]float64, name string, value []float64,
 }
 
 // wholeFlag is an int flag that takes a whole number as the study file
-// takes the same key (inputs.ParseWhole: "1e3" and "1000.0" too). Its
+// takes the same key (inputs.ParseWhole: decimal digits, so "0701" is 701
+// where pflag's int flags read octal 449, and "1e3" and "1000.0" too). Its
 // errors are strconv.ParseInt's, worded by the root's flag error hook.
 type wholeFlag struct{ p *int }
+
+// wholeVar binds an int flag read by wholeFlag, with its default.
+func wholeVar(fs *pflag.FlagSet, p *int, name string, value int, usage string) {
+	*p = value
+	fs.Var(wholeFlag{p}, name, usage)
+}
 
 func (w wholeFlag) String() string {
 	if w.p == nil {
@@ -170,6 +177,35 @@ func (w wholeFlag) Set(s string) error {
 }
 
 func (w wholeFlag) Type() string { return "int" }
+
+// wholeUintFlag is a uint64 flag read in decimal digits
+// (inputs.ParseWholeUint), as the study file reads the same key; pflag's
+// own reads "0701" as octal 449.
+type wholeUintFlag struct{ p *uint64 }
+
+func (w wholeUintFlag) String() string {
+	if w.p == nil {
+		return "0"
+	}
+	return strconv.FormatUint(*w.p, 10)
+}
+
+func (w wholeUintFlag) Set(s string) error {
+	v, err := inputs.ParseWholeUint(s)
+	if err != nil {
+		return err
+	}
+	*w.p = v
+	return nil
+}
+
+func (w wholeUintFlag) Type() string { return "uint" }
+
+// wholeUintVar binds a uint64 flag read by wholeUintFlag, with its default.
+func wholeUintVar(fs *pflag.FlagSet, p *uint64, name string, value uint64, usage string) {
+	*p = value
+	fs.Var(wholeUintFlag{p}, name, usage)
+}
 
 // onceString is a string flag that may be given once: given again with
 // another value it is refused, since only the last would be used and
@@ -220,7 +256,7 @@ func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
 		case *int:
 			f.Var(wholeFlag{p}, s.Name, s.Usage)
 		case *uint64:
-			f.Uint64Var(p, s.Name, *p, s.Usage)
+			wholeUintVar(f, p, s.Name, *p, s.Usage)
 		case *float64:
 			f.Float64Var(p, s.Name, *p, s.Usage)
 		case *[]float64:

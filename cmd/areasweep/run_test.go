@@ -68,6 +68,18 @@ func TestRunFlags(t *testing.T) {
 				t.Errorf("--iterations 1e3 gave %d, --ecoregion-min-points 4.0 gave %d", o.Iterations, o.EcoregionMinPoints)
 			}
 		}, ""},
+		// Leading zeros mean nothing: pflag's own int flags and YAML's
+		// resolver read 0701 as octal 449.
+		{"leading zeros", []string{"--model", "m=a.tif", "--occurrences", "o", "--region", "r", "--seed", "0701", "--iterations", "010"}, func(t *testing.T, o *RunOptions) {
+			if o.Seed != 701 || o.Iterations != 10 {
+				t.Errorf("--seed 0701 gave %d, --iterations 010 gave %d", o.Seed, o.Iterations)
+			}
+		}, ""},
+		{"leading zeros in the study file", []string{"--study", write(t, dir, "zeros.yaml", "model:\n  - a=a.tif\noccurrences: o.csv\nregion: r.gpkg\nseed: 0701\niterations: 010\n")}, func(t *testing.T, o *RunOptions) {
+			if o.Seed != 701 || o.Iterations != 10 {
+				t.Errorf("seed: 0701 gave %d, iterations: 010 gave %d", o.Seed, o.Iterations)
+			}
+		}, ""},
 		{"study file in exponent form", []string{"--study", write(t, dir, "exp.yaml", "model:\n  - a=a.tif\noccurrences: o.csv\nregion: r.gpkg\niterations: 2e2\n")}, func(t *testing.T, o *RunOptions) {
 			if o.Iterations != 200 {
 				t.Errorf("iterations: 2e2 gave %d", o.Iterations)

@@ -478,9 +478,16 @@ func intValue(key string, v *yaml.Node) (*int, error) {
 	var out int
 	switch n.ShortTag() {
 	case "!!int":
-		if err := n.Decode(&out); err != nil {
+		// Read from the text, in decimal (ParseWhole): YAML's resolver
+		// reads 0701 as octal 449 and takes 0x and 0b forms.
+		w, err := ParseWhole(n.Value)
+		switch {
+		case errors.Is(err, strconv.ErrRange):
 			return nil, badValue("%q is too large; %s", n.Value, writeExample(key, n, "1000", "1000"))
+		case err != nil:
+			return nil, badValue("%s is not a whole number in decimal digits; %s", shown(n.Value), writeExample(key, n, "1000", "1000"))
 		}
+		out = w
 	case "!!float":
 		var f float64
 		err := n.Decode(&f)
@@ -506,15 +513,20 @@ func wholeFloat(f float64) (int, bool) {
 }
 
 // ParseWhole parses a whole-number flag value as the study file reads the
-// same key: a Go integer literal (strconv.ParseInt, base prefixes and
-// underscores allowed, as pflag's int flags take them), or a decimal or
-// exponent form of a whole number ("1e3", "1000.0"). It returns
-// strconv.ParseInt's error (invalid syntax, or value out of range for a
-// whole number beyond 2^53) for anything else.
+// same key: decimal digits with an optional sign (strconv.ParseInt in
+// base 10, so "0701" is 701, never octal 449), or a decimal or exponent
+// form of a whole number ("1e3", "1000.0"). Base prefixes (0x, 0o, 0b),
+// underscores and hexadecimal floats are refused: a seed or a count is
+// written as a person reads it. It returns strconv.ParseInt's error
+// (invalid syntax, or value out of range for a whole number beyond 2^53)
+// for anything else.
 func ParseWhole(s string) (int, error) {
-	v, err := strconv.ParseInt(s, 0, strconv.IntSize)
+	v, err := strconv.ParseInt(s, 10, strconv.IntSize)
 	if err == nil {
 		return int(v), nil
+	}
+	if strings.ContainsAny(s, "xX_") {
+		return 0, &strconv.NumError{Func: "ParseInt", Num: s, Err: strconv.ErrSyntax}
 	}
 	if f, ferr := strconv.ParseFloat(s, 64); ferr == nil && !math.IsInf(f, 0) && f == math.Trunc(f) {
 		if w, ok := wholeFloat(f); ok {
@@ -525,6 +537,14 @@ func ParseWhole(s string) (int, error) {
 	return 0, err
 }
 
+// ParseWholeUint parses a whole number of 0 or more in decimal digits
+// (strconv.ParseUint in base 10: "0701" is 701, and base prefixes and
+// underscores are refused, as ParseWhole does), returning
+// strconv.ParseUint's error otherwise.
+func ParseWholeUint(s string) (uint64, error) {
+	return strconv.ParseUint(s, 10, 64)
+}
+
 func uintValue(key string, v *yaml.Node) (*uint64, error) {
 	n, err := scalar(key, v, "a whole number", "42")
 	if err != nil {
@@ -533,9 +553,11 @@ func uintValue(key string, v *yaml.Node) (*uint64, error) {
 	if n.ShortTag() != "!!int" {
 		return nil, badValue("%s is not a whole number%s; %s", shown(n.Value), quotedHint(n), writeExample(key, n, "42", "42"))
 	}
-	var out uint64
-	if err := n.Decode(&out); err != nil {
-		return nil, badValue("%s is not a whole number from 0 to %d; %s", shown(n.Value), uint64(math.MaxUint64), writeExample(key, n, "42", "42"))
+	// Read from the text, in decimal: YAML's resolver reads 0701 as
+	// octal 449 and takes 0x and 0b forms.
+	out, err := ParseWholeUint(n.Value)
+	if err != nil {
+		return nil, badValue("%s is not a whole number from 0 to %d in decimal digits; %s", shown(n.Value), uint64(math.MaxUint64), writeExample(key, n, "42", "42"))
 	}
 	return &out, nil
 }

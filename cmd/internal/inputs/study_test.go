@@ -663,8 +663,9 @@ func FuzzParseStudy(f *testing.F) {
 }
 
 // TestParseWhole: a whole-number flag takes what the study file takes for
-// the same key (Go integer literals, and whole numbers in decimal or
-// exponent form, YAML's float forms); anything else keeps
+// the same key (decimal digits, leading zeros meaning nothing, and whole
+// numbers in decimal or exponent form, YAML's float forms); anything else,
+// base prefixes and underscores included, keeps
 // strconv.ParseInt's error, which the command words for the user. The
 // expected values are the literals' own values under Go's number syntax
 // (the Go specification's integer and floating-point literals) and our
@@ -680,8 +681,14 @@ func TestParseWhole(t *testing.T) {
 		{"1e3", 1000, nil},
 		{"1000.0", 1000, nil},
 		{"-2e0", -2, nil},
-		{"0x10", 16, nil},
-		{"1_000", 1000, nil},
+		{"0701", 701, nil}, // decimal: Go's base-0 parsing and YAML read octal 449
+		{"08", 8, nil},
+		{"-0012", -12, nil},
+		{"0x10", 0, strconv.ErrSyntax},
+		{"0o17", 0, strconv.ErrSyntax},
+		{"0b101", 0, strconv.ErrSyntax},
+		{"1_000", 0, strconv.ErrSyntax},
+		{"0x1p4", 0, strconv.ErrSyntax}, // a hexadecimal float ParseFloat takes
 		{"9007199254740992", 1 << 53, nil},
 		{"9.007199254740992e15", 1 << 53, nil},
 		{"1.5", 0, strconv.ErrSyntax},
@@ -706,15 +713,47 @@ func TestParseWhole(t *testing.T) {
 			t.Errorf("ParseWhole(%q) = %d, %v; want strconv.ParseInt's %v", c.in, got, err, c.err)
 		}
 	}
-	// The study file reads the same forms as the same numbers.
-	for _, c := range cases[:4] {
+	// The study file reads the same forms as the same numbers, and
+	// refuses the others.
+	for _, c := range cases {
+		if c.in == "" {
+			continue // a key without a value is YAML's null: the key unset
+		}
 		st, err := ParseStudy(strings.NewReader("iterations: "+c.in+"\n"), "s.yaml", ".")
+		if c.err != nil {
+			if err == nil {
+				t.Errorf("study iterations: %s read as %v; want it refused", c.in, (*st)["iterations"])
+			}
+			continue
+		}
 		if err != nil {
 			t.Errorf("study iterations: %s: %v", c.in, err)
 			continue
 		}
 		if got, ok := (*st)["iterations"].(int); !ok || got != c.want {
 			t.Errorf("study iterations: %s gave %v; want %d", c.in, (*st)["iterations"], c.want)
+		}
+	}
+	// The seed (0 or more) too: decimal digits only.
+	for in, want := range map[string]uint64{"0701": 701, "42": 42, "18446744073709551615": 1<<64 - 1} {
+		st, err := ParseStudy(strings.NewReader("seed: "+in+"\n"), "s.yaml", ".")
+		if err != nil {
+			t.Errorf("study seed: %s: %v", in, err)
+			continue
+		}
+		if got, ok := (*st)["seed"].(uint64); !ok || got != want {
+			t.Errorf("study seed: %s gave %v; want %d", in, (*st)["seed"], want)
+		}
+		if got, err := ParseWholeUint(in); err != nil || got != want {
+			t.Errorf("ParseWholeUint(%q) = %d, %v; want %d", in, got, err, want)
+		}
+	}
+	for _, in := range []string{"0x10", "0o17", "0b1", "1_000", "-1", "+1", "18446744073709551616"} {
+		if st, err := ParseStudy(strings.NewReader("seed: "+in+"\n"), "s.yaml", "."); err == nil {
+			t.Errorf("study seed: %s read as %v; want it refused", in, (*st)["seed"])
+		}
+		if got, err := ParseWholeUint(in); err == nil {
+			t.Errorf("ParseWholeUint(%q) = %d; want an error", in, got)
 		}
 	}
 }
