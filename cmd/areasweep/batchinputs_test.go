@@ -119,7 +119,7 @@ func TestBatchInputReplaced(t *testing.T) {
 		t.Fatalf("occ.csv replaced: exit %d, want 1 (as for a changed row): %s", code, se)
 	}
 	for _, want := range []string{"b: already finished, skipped", "1 of 2 studies failed: a",
-		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs it again (it was made from other settings or inputs, or its completion marker is damaged)"} {
+		"a: " + filepath.Join(out, "a") + " was made from other inputs (since it finished, the occurrences file " + occ + " holds other content (SHA-256 ", "add --force to run it again, or restore the file", "--force runs it again (it was made from other settings or inputs, its results changed since, or its completion marker is damaged)"} {
 		if !strings.Contains(se, want) {
 			t.Errorf("occ.csv replaced: stderr lacks %q:\n%s", want, se)
 		}
@@ -252,5 +252,44 @@ func TestBatchInputReplacedShards(t *testing.T) {
 	got, _ := os.ReadFile(filepath.Join(out, "a", "results.json"))
 	if len(want) == 0 || !bytes.Equal(got, want) {
 		t.Error("after --force with shards: a's results.json differs from a plain run on the new occ.csv")
+	}
+}
+
+// TestBatchResultsChanged: a finished study whose results.json is no
+// longer the one it wrote (another run wrote into its folder with
+// --force, or the file was edited) is named and not taken into the
+// summary as the study's, exit 1 as for a changed row; --force runs it
+// again. It was skipped, and the summary read the other run's results.
+func TestBatchResultsChanged(t *testing.T) {
+	_, table := inputsStudy(t)
+	out := filepath.Join(t.TempDir(), "runs")
+	if _, se, code := runBin(t, "batch", table, "--out", out); code != 0 {
+		t.Fatalf("first run: exit %d: %s", code, se)
+	}
+	res := filepath.Join(out, "a", "results.json")
+	b, err := os.ReadFile(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(res, append(b, '\n'), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, se, code := runBin(t, "batch", table, "--out", out)
+	if code != 1 {
+		t.Fatalf("exit %d, want 1: %s", code, se)
+	}
+	for _, want := range []string{filepath.Join(out, "a") + " was made by a run whose results.json has changed since it finished", "add --force to run it again, or remove the folder", "its results changed since"} {
+		if !strings.Contains(se, want) {
+			t.Errorf("stderr does not say %q: %s", want, se)
+		}
+	}
+	if strings.Contains(se, filepath.Join(out, "b")+" was made") {
+		t.Errorf("study b, untouched, is named: %s", se)
+	}
+	if _, se, code := runBin(t, "batch", table, "--out", out, "--force"); code != 0 {
+		t.Fatalf("--force: exit %d: %s", code, se)
+	}
+	if after, err := os.ReadFile(res); err != nil || bytes.Equal(after, append(b, '\n')) {
+		t.Errorf("--force left the edited results.json (%v)", err)
 	}
 }

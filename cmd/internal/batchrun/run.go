@@ -320,9 +320,9 @@ func failedStudies(o *Options, studies []*study, errs []error, failed int, summa
 	case damaged == failed:
 		again = "each line says what to do"
 	case stale == failed && failed == 1:
-		again = force + " runs it again (it was made from other settings or inputs, or its completion marker is damaged)"
+		again = force + " runs it again (it was made from other settings or inputs, its results changed since, or its completion marker is damaged)"
 	case stale == failed:
-		again = force + " runs them again (they were made from other settings or inputs, or their completion marker is damaged)"
+		again = force + " runs them again (they were made from other settings or inputs, their results changed since, or their completion marker is damaged)"
 	case occupied == failed && failed == 1:
 		again = force + " runs it again (its folder holds files but no completion marker; it replaces areasweep's files only)"
 	case occupied == failed:

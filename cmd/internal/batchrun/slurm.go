@@ -340,7 +340,7 @@ func waited(o *Options, w io.Writer, studies []*study, logs string, staleIDs, un
 		return fmt.Errorf("%d of %d studies did not finish (%s): see %s and the logs in %s; run the same command again to resubmit only their unfinished tasks%s",
 			len(notDone), len(studies), strings.Join(notDone, ", "), filepath.Join(o.Out, "summary.html"), logs, also)
 	case len(staleIDs) > 0:
-		return fmt.Errorf("%d of %d studies were made from other settings or inputs (or their completion marker is damaged) and not run again (%s, each named above): add --force to run them again",
+		return fmt.Errorf("%d of %d studies were made from other settings or inputs (or their results changed since, or their completion marker is damaged) and not run again (%s, each named above): add --force to run them again",
 			len(staleIDs), len(studies), strings.Join(staleIDs, ", "))
 	}
 	fmt.Fprintf(w, "every task finished; summary: %s\n", filepath.Join(o.Out, "summary.html"))

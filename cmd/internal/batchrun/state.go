@@ -93,6 +93,17 @@ func (st *study) markerState(dir string) (studyState, staleness, error) {
 		}
 		return stateStale, staleness{"from other inputs (since it finished, " + strings.Join(what, "; ") + ")", remedy}, nil
 	}
+	if want := m["results"]; want != "" {
+		// The study's results.json as it finished (the marker records
+		// its checksum): another run that wrote into the folder (run
+		// --out DIR/ID --force) left the marker, and the summary would
+		// take that run's results for the study's. A removed file is
+		// the summary's to tell (the same command skips the study).
+		got, err := batch.FileSHA256(filepath.Join(dir, "results.json"))
+		if err == nil && got != want {
+			return stateStale, staleness{"by a run whose results.json has changed since it finished (another run wrote into the folder, or the file was edited)", "remove the folder"}, nil
+		}
+	}
 	if c.Refreshed != nil {
 		m.SetInputs(c.Refreshed)
 		batch.WriteMarker(dir, m) // best effort: without it the next check hashes the file again
