@@ -3,16 +3,20 @@ package gdalmsg
 /*
 #cgo pkg-config: gdal
 void gdalmsgInstall(void);
+int gdalmsgRedirectStderr(int fd);
 */
 import "C"
 
 import (
+	"bufio"
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"regexp"
 	"strings"
 	"sync"
+	"syscall"
 )
 
 // Level is GDAL's message category (CPLErr).
@@ -80,10 +84,76 @@ var (
 	once    sync.Once
 )
 
-// Install replaces GDAL's default message printer with the recorder. It is
-// safe to call many times; only the first call acts.
+// Install replaces GDAL's default message printer with the recorder, and
+// sends what C libraries print on C's standard error stream themselves to
+// it too (redirectCStderr). It is safe to call many times; only the first
+// call acts.
 func Install() {
-	once.Do(func() { C.gdalmsgInstall() })
+	once.Do(func() {
+		C.gdalmsgInstall()
+		redirectCStderr()
+	})
+}
+
+// redirectCStderr points C's stderr stream at a pipe whose lines are
+// recorded (recordCLines). The HDF5 library under GDAL's netCDF and HDF5
+// drivers prints its error stack there ("HDF5-DIAG: Error detected in
+// HDF5 ..."), even for a valid netCDF-4 file whose optional attributes
+// the driver looks for: the netCDF library turns that printing off only
+// in the thread that opened it, and a Go program calls C from many
+// threads. When the pipe cannot be made the stream stays as it was.
+func redirectCStderr() {
+	r, w, err := os.Pipe()
+	if err != nil {
+		return
+	}
+	fd, err := syscall.Dup(int(w.Fd()))
+	w.Close()
+	if err != nil {
+		r.Close()
+		return
+	}
+	syscall.CloseOnExec(fd)
+	if C.gdalmsgRedirectStderr(C.int(fd)) != 0 {
+		syscall.Close(fd)
+		r.Close()
+		return
+	}
+	go recordCLines(r)
+}
+
+// hdf5Frame is a frame line of an HDF5 error stack: "  #000: H5A.c line
+// 528 in H5Aopen_by_name(): can't open attribute".
+var hdf5Frame = regexp.MustCompile(`^\s*#\d+: .* in ([A-Za-z0-9_]+)\(\)(?:: (.*))?$`)
+
+// recordCLines records each line printed on C's stderr stream as a
+// library warning: of an HDF5 error stack only its first frame (the call
+// that failed and why, "HDF5: H5Aopen_by_name(): can't open attribute"),
+// and nothing of its header or of the frames' major and minor lines.
+func recordCLines(r io.Reader) {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 0, 4096), 1<<20)
+	inStack := false
+	for sc.Scan() {
+		line := strings.TrimRight(sc.Text(), "\r")
+		switch t := strings.TrimSpace(line); {
+		case t == "":
+		case strings.HasPrefix(t, "HDF5-DIAG:"):
+			inStack = true
+		case inStack && (strings.HasPrefix(t, "major:") || strings.HasPrefix(t, "minor:")):
+		case inStack && hdf5Frame.MatchString(t):
+			if m := hdf5Frame.FindStringSubmatch(t); strings.HasPrefix(t, "#000:") {
+				text := "HDF5: " + m[1] + "()"
+				if m[2] != "" {
+					text += ": " + m[2]
+				}
+				Record(Warning, 0, text)
+			}
+		default:
+			inStack = false
+			Record(Warning, 0, t)
+		}
+	}
 }
 
 //export gdalmsgRecord

@@ -1,8 +1,10 @@
 package gdalmsg
 
 import (
+	"slices"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/airbusgeo/godal"
 )
@@ -194,3 +196,29 @@ func TestForget(t *testing.T) {
 }
 
 func must(m []Message, _ int) []Message { return m }
+
+// TestCStderrRecorded: what a C library prints on C's stderr stream
+// itself reaches the recorder, not the terminal: of an HDF5 error stack
+// (the one HDF5 1.10 printed for a valid netCDF-4 model, whose optional
+// attribute GDAL's driver looks for) only its first frame, once per
+// stack; any other line as it is.
+func TestCStderrRecorded(t *testing.T) {
+	Install()
+	Drain()
+	printCStderr("HDF5-DIAG: Error detected in HDF5 (1.10.8) thread 1:\n" +
+		"  #000: H5A.c line 528 in H5Aopen_by_name(): can't open attribute\n" +
+		"    major: Attribute\n    minor: Can't open object\n" +
+		"  #001: H5Aint.c line 545 in H5A__open_by_name(): unable to load attribute info from object header\n" +
+		"    major: Attribute\n    minor: Unable to initialize object\n")
+	printCStderr("some library: a line of its own\n")
+	want := []string{"library warning: HDF5: H5Aopen_by_name(): can't open attribute", "library warning: some library: a line of its own"}
+	var got []string
+	for deadline := time.Now().Add(10 * time.Second); len(got) < len(want) && time.Now().Before(deadline); {
+		msgs, _ := Drain()
+		got = append(got, Lines(msgs)...)
+		time.Sleep(5 * time.Millisecond)
+	}
+	if !slices.Equal(got, want) {
+		t.Errorf("recorded %q, want %q", got, want)
+	}
+}
