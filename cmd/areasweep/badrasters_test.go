@@ -135,6 +135,26 @@ func TestBadRastersAndLayers(t *testing.T) {
 		}
 		return 1 + ridge(i)
 	}, 1e300)
+	// A classic netCDF file cut short: GDAL read its missing cells as 0.
+	ncCut := filepath.Join(f.dir, "cut3.nc")
+	{
+		src, err := godal.Open(f.model)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds, err := src.Translate(ncCut, []string{"-of", "netCDF", "-co", "FORMAT=NC"})
+		src.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+		os.Remove(ncCut + ".aux.xml")
+		b, err := os.ReadFile(ncCut)
+		if err != nil {
+			t.Fatal(err)
+		}
+		os.WriteFile(ncCut, b[:len(b)/2], 0o644)
+	}
 	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
 	const marsWKT = `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`
 	mars := f.rasterWith(t, "mars.tif", f.gt, marsWKT, ridge)
@@ -327,6 +347,7 @@ func TestBadRastersAndLayers(t *testing.T) {
 		{name: "model with a scale of 0", args: f.withModel(scaleZero), code: 2, words: []string{"model m", "scale0.tif", "scale of 0", "gdal_translate -a_scale 1"}},
 		{name: "model whose scale overflows at the points", args: f.withModel(scaleHuge), code: 2, words: []string{"model m", "scalehuge.tif declares a scale of 1e+308", "beyond the largest number a float64 holds", "gdal_translate -a_scale"}},
 		{name: "model whose scale overflows away from the points", args: f.withModel(scaleHugeLastRow), code: 2, words: []string{"model m", "scalehugerow.tif declares a scale of 1e+300", "its stored value 1.0000000150474662e+30", "beyond the largest number"}},
+		{name: "model a classic netCDF file cut short", args: f.withModel(ncCut), code: 2, words: []string{"model m", "cut3.nc", "classic netCDF file whose header says its values take", "cut short"}},
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
 		{name: "region on Mars", args: f.withRegion(marsRegion), code: 2, words: []string{"region: ", "mars.gpkg: cannot be reprojected to the raster CRS", "same celestial body", "check that the layer's CRS is right"}},
 		{name: "extra layer on Mars", args: f.run("--extra", "x="+marsRegion), code: 2, words: []string{"extra x: ", "mars.gpkg: cannot be reprojected"}},

@@ -570,9 +570,14 @@ func mustExist(what, path string) error {
 
 // checkHDF5 refuses a damaged HDF5 file before GDAL's drivers are tried
 // on it (extent.CheckHDF5: the HDF5 library would print its error stack
-// on the terminal).
+// on the terminal), and a classic netCDF file cut short
+// (extent.CheckNetCDFClassic: GDAL reads its missing values as 0).
 func checkHDF5(what, path string, raster bool) error {
-	if err := extent.CheckHDF5(path, raster); err != nil {
+	err := extent.CheckHDF5(path, raster)
+	if err == nil {
+		err = extent.CheckNetCDFClassic(path)
+	}
+	if err != nil {
 		give := "a GeoTIFF (or another raster GDAL reads) and check that it opens in a GIS"
 		if !raster {
 			give = "a GeoPackage, shapefile (.shp with its .shx and .dbf) or GeoJSON file of polygons"
