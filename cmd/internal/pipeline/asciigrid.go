@@ -103,7 +103,7 @@ func gridValues(br *bufio.Reader, first []string, line int, ncols, nrows int64) 
 	for ws := first; ; {
 		if len(ws) > 0 {
 			for _, w := range ws {
-				if bad == "" && !isNumber(w) {
+				if bad == "" && (!isNumber(w) || isInfinity(w)) {
 					badLine, bad = line, w
 				}
 			}
@@ -130,18 +130,34 @@ func gridValues(br *bufio.Reader, first []string, line int, ncols, nrows int64) 
 	switch {
 	case n < want:
 		return fmt.Sprintf("holds %d values where its header's ncols %d × nrows %d make %d%s: the file was cut short, or a row lacks values", n, ncols, nrows, want, at), nil
+	case bad != "" && isInfinity(bad):
+		return fmt.Sprintf("line %d holds %s, which GDAL reads as the largest (or lowest) 32-bit float, ±3.4e38, not as infinity, and scores as data without a word; write the grid's NODATA_value in that cell for a cell without data, or the number you mean", badLine, strconv.Quote(bad)), nil
 	case bad != "":
-		return fmt.Sprintf("line %d holds %s, which is no number (GDAL would read it as the number at its start, or 0, without a word)", badLine, strconv.Quote(bad)), nil
+		return fmt.Sprintf("line %d holds %s, which is no number (a plain decimal, with a sign, a dot and an exponent as needed): GDAL reads such a word without a word of its own, and may read it as another value (0,5 as 0, 1e999 as the largest 32-bit float)", badLine, strconv.Quote(bad)), nil
 	case n > want:
 		return fmt.Sprintf("holds %d values where its header's ncols %d × nrows %d make %d%s: a row with a value too many shifts every cell after it, and GDAL ignores the values past the last cell without a word", n, ncols, nrows, want, at), nil
 	}
 	return "", nil
 }
 
+// isInfinity reports whether w is an infinity as strconv reads one ("inf",
+// "-Infinity"): GDAL's ASCII grid reader reads it as ±3.4e38.
+func isInfinity(w string) bool {
+	switch strings.ToLower(strings.TrimLeft(w, "+-")) {
+	case "inf", "infinity":
+		return true
+	}
+	return false
+}
+
 // isNumber reports whether w is a number as strconv reads one (digits
-// with a dot, an exponent, a sign; nan and inf too), first by its
-// characters alone, since most are plain decimals.
+// with a dot, an exponent, a sign; nan, with or without a sign as GDAL
+// reads it, and inf too), first by its characters alone, since most are
+// plain decimals.
 func isNumber(w string) bool {
+	if strings.EqualFold(strings.TrimLeft(w, "+-"), "nan") && len(w) <= 4 {
+		return true
+	}
 	digits := false
 	for i := 0; i < len(w); i++ {
 		c := w[i]

@@ -15,8 +15,10 @@ import (
 // row of a 300 × 240 grid changed 2682 cells, compared with numpy's
 // reading of the intact file: the values after it shifted by one).
 // Grids GDAL reads as written are accepted: any case in the header,
-// Windows line ends, nan, exponents, values wrapped over other lines than
-// the rows. Expected counts worked by hand from the texts.
+// Windows line ends, nan (signed too), exponents, values wrapped over
+// other lines than the rows. An infinity, which GDAL reads as ±3.4e38, a
+// value like any other, is refused too. Expected counts worked by hand
+// from the texts.
 func TestASCIIGridCells(t *testing.T) {
 	head := "ncols 3\nnrows 2\nxllcorner 0\nyllcorner 0\ncellsize 1\nNODATA_value -9999\n"
 	cases := []struct {
@@ -26,6 +28,12 @@ func TestASCIIGridCells(t *testing.T) {
 		{"header in capitals, centre, no nodata", "NCOLS 3\nNROWS 2\nXLLCENTER 0.5\nYLLCENTER 0.5\nCELLSIZE 1\n1 2 3\n4 5 6", ""},
 		{"windows line ends", strings.ReplaceAll(head+"1 2 3\n4 5 6\n", "\n", "\r\n"), ""},
 		{"nan, exponents, signs", head + "nan -1.5e-3 +2\n-9999 .5 6.\n", ""},
+		{"a signed nan (GDAL: NaN, no data)", head + "-nan 2 3\nNaN 5 6\n", ""},
+		// GDAL reads inf as the largest float32, 3.4e38, a value scored
+		// as data (helper probe of 2026-12-05: value_max 3.4e38).
+		{"inf", head + "1 2 3\n4 inf 6\n", `line 8 holds "inf", which GDAL reads as the largest (or lowest) 32-bit float, ±3.4e38, not as infinity`},
+		{"-Infinity", head + "1 -Infinity 3\n4 5 6\n", `line 7 holds "-Infinity", which GDAL reads as the largest (or lowest) 32-bit float`},
+		{"beyond the range", head + "1 2 3\n4 1e999 6\n", `line 8 holds "1e999", which is no number`},
 		{"values wrapped", head + "1 2\n3 4\n5 6\n", ""},
 		{"a word", head + "1 abc 2 3\n4 5 6\n", `line 7 holds "abc", which is no number`},
 		{"decimal comma", head + "1 2 3\n4 0,5 6\n", `line 8 holds "0,5", which is no number`},
