@@ -331,6 +331,20 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	}
 	alphaModel := masked("alpha.tif", true)
 	maskModel := masked("masked.tif", false)
+	// The same mask on a raster that also declares a nodata value: GDAL
+	// takes the mask instead of the value (the refusal said the raster had
+	// none).
+	maskNodataModel := masked("maskednd.tif", false)
+	{
+		ds, err := godal.Open(maskNodataModel, godal.Update())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := ds.Bands()[0].SetNoData(-9999); err != nil {
+			t.Fatal(err)
+		}
+		ds.Close()
+	}
 	// A null whose first tile cannot be decoded (its deflate stream
 	// overwritten in the middle): the message names the null as a null.
 	damagedNull := func() string {
@@ -677,6 +691,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"null with a tile that cannot be decoded", f.run("--null", "n="+damagedNull), 2, []string{"null n", "damagednull.tif", "the block at column 0 row 0 cannot be read"}, "", ""},
 		{"model with an alpha band", f.withModel(alphaModel), 2, []string{"model m", "alpha.tif", "alpha band", "gdalwarp -ot Float32 -dstnodata -9999"}, "", ""},
 		{"null with an internal mask", f.run("--null", "n="+maskModel), 2, []string{"null n", "masked.tif", "by a mask", "gdalwarp"}, "", ""},
+		{"model with an internal mask and a nodata value", f.run("--model", "m2="+maskNodataModel), 2, []string{"model m2", "maskednd.tif marks its cells without data by a mask", "which GDAL takes instead of its nodata value (-9999)", "the cells the mask alone marks", "gdalwarp"}, "", ""},
 		{"models on different grids", f.run("--model", "s="+shifted), 2, []string{"shifted.tif", "geotransform"}, "", ""},
 		{"model needing too much memory", []string{"run", "--model", "m=" + huge, "--occurrences", f.file("hugeocc.csv", "lon,lat,role\n13.01,42.6,train\n13.02,43,test\n"), "--region", f.region, "--iterations", "5", "--region-buffers=" + hundred}, 2, []string{"memory", "4096x16000000", "gdalwarp"}, "", ""},
 

@@ -154,7 +154,7 @@ func (s *Study) openGrid() error {
 		}
 		if msg != "" {
 			g.Close()
-			return fault.BadInput(fmt.Errorf("%s: %s %s; areasweep reads no data from the band's nodata value only, so it would score those cells as data: "+
+			return fault.BadInput(fmt.Errorf("%s: %s %s; areasweep reads no data from the band's nodata value only, so it would score the cells the mask alone marks as data: "+
 				"write them as nodata, e.g. gdalwarp -ot Float32 -dstnodata -9999 %s %s", m.who(), m.Path, msg, shellArg(m.Path), shellArg(strings.TrimSuffix(m.Path, filepath.Ext(m.Path))+"_nodata.tif")))
 		}
 		if colours > 0 {
@@ -270,7 +270,15 @@ func maskProblem(path string) (mask, band string, nBands, colours int) {
 		band = pass.BandProblem(bands[0])
 		colours = len(bands[0].ColorTable().Entries)
 	}
-	return maskOf(bands), band, len(bands), colours
+	mask = maskOf(bands)
+	if mask != "" {
+		if nd, ok := bands[0].NoData(); ok {
+			// GDAL takes a mask before a nodata value: the mask may mark
+			// cells the value does not.
+			mask += fmt.Sprintf(", which GDAL takes instead of its nodata value (%g)", nd)
+		}
+	}
+	return mask, band, len(bands), colours
 }
 
 // colourTableWarning says that the model or null who (its raster at path,
