@@ -464,8 +464,21 @@ func TestRunErrors(t *testing.T) {
 	if b, _ := os.ReadFile(filepath.Join(out, "keep.txt")); string(b) != "mine" {
 		t.Error("existing out was touched without --force")
 	}
-	// --force replaces areasweep's own files (an old results.json) and
-	// keeps every other file.
+	// --force does not replace a results.json no run wrote there (the
+	// user's own, or a copy): refused, naming it, nothing changed.
+	os.WriteFile(filepath.Join(out, "results.json"), []byte("old"), 0o644)
+	if _, se, code := runBin(t, append(base(out), "--force")...); code != 2 || !strings.Contains(se, filepath.Join(out, "results.json")+", which no areasweep run wrote there") {
+		t.Errorf("--force over a results.json no run wrote: exit %d: %s", code, se)
+	}
+	if b, _ := os.ReadFile(filepath.Join(out, "results.json")); string(b) != "old" {
+		t.Error("--force replaced a results.json no run wrote")
+	}
+	// --force replaces areasweep's own files (an earlier run's
+	// results.json, even edited since) and keeps every other file.
+	os.Remove(filepath.Join(out, "results.json"))
+	if _, se, code := runBin(t, append(base(out), "--force")...); code != 0 {
+		t.Fatalf("--force: exit %d: %s", code, se)
+	}
 	os.WriteFile(filepath.Join(out, "results.json"), []byte("old"), 0o644)
 	if _, se, code := runBin(t, append(base(out), "--force")...); code != 0 {
 		t.Fatalf("--force: exit %d: %s", code, se)

@@ -13,6 +13,7 @@ import (
 	"areasweep/cmd/internal/inputs"
 	"areasweep/cmd/internal/pipeline"
 	"areasweep/metrics"
+	"areasweep/report"
 )
 
 // studyState is what is known of one study before the batch runs it.
@@ -99,9 +100,14 @@ func (st *study) markerState(dir string) (studyState, staleness, error) {
 		// --out DIR/ID --force) left the marker, and the summary would
 		// take that run's results for the study's. A removed file is
 		// the summary's to tell (the same command skips the study).
-		got, err := batch.FileSHA256(filepath.Join(dir, "results.json"))
+		// A file that no longer reads as results is the summary's to
+		// word (what is wrong in it, and how to restore it).
+		res := filepath.Join(dir, "results.json")
+		got, err := batch.FileSHA256(res)
 		if err == nil && got != want {
-			return stateStale, staleness{"by a run whose results.json has changed since it finished (another run wrote into the folder, or the file was edited)", "remove the folder"}, nil
+			if _, lerr := report.LoadWritten(res, ""); lerr == nil {
+				return stateStale, staleness{"by a run whose results.json has changed since it finished (another run wrote into the folder, or the file was edited)", "remove the folder"}, nil
+			}
 		}
 	}
 	if c.Refreshed != nil {

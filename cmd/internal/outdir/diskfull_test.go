@@ -42,6 +42,7 @@ func TestOpenOnFullDisk(t *testing.T) {
 					if err := os.WriteFile(prev, []byte("previous run"), 0o644); err != nil {
 						t.Fatal(err)
 					}
+					earlierRun(t, out, "results.json")
 				}
 				_, err := Open(out, true, nil)
 				if err == nil {

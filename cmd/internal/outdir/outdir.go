@@ -46,7 +46,10 @@ import (
 //     replaced: a name that appeared in --out during the run stops the move
 //     and the results are kept in a visible folder. With --force the
 //     entries areasweep writes (outputNames) are replaced as a set and any
-//     other file in --out is left alone.
+//     other file in --out is left alone; an entry of those names is
+//     replaced only when the record a run leaves in --out (record.go)
+//     lists it, so a file of the user's that bears such a name is never
+//     replaced.
 
 // outputNames are the entries of --out that areasweep writes; --force
 // replaces these, and only these.
@@ -386,6 +389,12 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs, shard
 		}
 		if f := d.folderAtFile(own); f != "" {
 			return nil, false, fault.BadInput(folderAtFileError(out, f))
+		}
+		if demo {
+			own = append(slices.Clip(own), "inputs")
+		}
+		if found := d.unrecorded(own); len(found) > 0 {
+			return nil, false, fault.BadInput(unrecordedError(out, found))
 		}
 	} else if !errors.Is(err, os.ErrNotExist) {
 		if errors.Is(err, syscall.ENOTDIR) {
@@ -893,16 +902,23 @@ func (d *Dir) restoreHold(hold string) {
 			return // not a journal of this --out: the folder is removed as it was
 		}
 		var moved []string
+		listed := 0
 		for _, n := range lines[1:] {
-			if n == "" || n != filepath.Base(n) || n == "." || n == ".." {
+			if n == "" || n != filepath.Base(n) || n == "." || n == ".." || n == recordName {
 				continue
 			}
+			listed++
 			if _, err := os.Lstat(filepath.Join(stage, n)); errors.Is(err, os.ErrNotExist) {
 				moved = append(moved, n)
 			}
 		}
-		if len(moved) == len(lines)-1 {
-			return // killed after its last move: --out holds the new run whole
+		if len(moved) == listed {
+			// Killed after its last move but the record's: --out holds
+			// the new run whole, and its record goes in with it.
+			if slices.Contains(lines[1:], recordName) {
+				os.Rename(filepath.Join(stage, recordName), filepath.Join(d.abs, recordName))
+			}
+			return
 		}
 		for _, n := range moved {
 			os.RemoveAll(filepath.Join(d.abs, n))
@@ -1050,6 +1066,10 @@ func (d *Dir) Finish() error {
 	}
 	d.done = true
 	defer d.release()
+	if err := d.writeRecord(); err != nil {
+		os.RemoveAll(d.Stage)
+		return moveFailed(d.Out, "cannot write in "+d.Out, err)
+	}
 	if filepath.Dir(d.Stage) == d.parent {
 		if err := os.Rename(d.Stage, d.abs); err == nil {
 			d.created = nil
@@ -1088,6 +1108,19 @@ func moveFailed(out, what string, err error) error {
 // movedHook, set by tests, sees each entry moveEntries moved, in order.
 var movedHook func(name string)
 
+// replaced returns the entries of --out that moving the staged entries
+// (named staged) replaces with --force: areasweep's outputs
+// (outputNames, and the demo's inputs/), or a shard's own files.
+func (d *Dir) replaced(staged []string) []string {
+	switch {
+	case d.Shard:
+		return staged
+	case d.Demo:
+		return append(slices.Clip(outputNames), "inputs")
+	}
+	return outputNames
+}
+
 // moveEntries moves each staged entry into --out. Without --force an
 // entry whose name already exists stops everything before any move, and
 // the results are kept in a visible folder beside --out. With --force the
@@ -1111,6 +1144,9 @@ func (d *Dir) moveEntries() error {
 	}
 	var clash []string
 	for n := range names {
+		if n == recordName {
+			continue // the record of --out, which the staged one extends
+		}
 		if _, err := os.Lstat(filepath.Join(d.abs, n)); err == nil {
 			clash = append(clash, n)
 		}
@@ -1125,16 +1161,11 @@ func (d *Dir) moveEntries() error {
 		return fmt.Errorf("%s gained %s during the run and --force was not given, so nothing in it was replaced; the results are in %s",
 			d.Out, strings.Join(clash, ", "), keep)
 	}
-	replace := outputNames
-	if d.Demo {
-		replace = append(append([]string{}, outputNames...), "inputs")
+	stagedNames := make([]string, len(staged))
+	for i, e := range staged {
+		stagedNames[i] = e.Name()
 	}
-	if d.Shard {
-		replace = nil
-		for _, e := range staged {
-			replace = append(replace, e.Name())
-		}
-	}
+	replace := d.replaced(stagedNames)
 	// A file of the user's that reached a folder replaced as a whole
 	// during the run, or a folder of the user's where a file goes (a
 	// shard's own files were checked at the start too): nothing is
@@ -1144,6 +1175,8 @@ func (d *Dir) moveEntries() error {
 		inWay = foreignError(d.Out, found)
 	} else if f := d.folderAtFile(replace); f != "" {
 		inWay = folderAtFileError(d.Out, f)
+	} else if found := d.unrecorded(replace); len(found) > 0 {
+		inWay = unrecordedError(d.Out, found)
 	}
 	if inWay != nil {
 		keep := d.abs + ".results-" + strconv.Itoa(os.Getpid())

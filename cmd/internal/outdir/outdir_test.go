@@ -89,6 +89,7 @@ func TestFinishNeverDeletesOthersFiles(t *testing.T) {
 		os.WriteFile(filepath.Join(out, "figures", "ring_steps_7.svg"), []byte("old"), 0o644)
 		os.WriteFile(filepath.Join(out, "extents.tif"), []byte("old"), 0o644)
 		os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644)
+		earlierRun(t, out, "figures", "extents.tif")
 		d, err := Open(out, true, nil)
 		if err != nil {
 			t.Fatal(err)
@@ -219,6 +220,7 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 		for _, n := range []string{"figures/ring_steps_12.pdf", "figures/model_minus_null.png", "figures/.extent_maps.svg.tmp-12345", "inputs/notes.txt"} {
 			mine(t, filepath.Join(out, n))
 		}
+		earlierRun(t, out, "figures")
 		d, err := Open(out, true, nil) // not the demo: inputs/ is not replaced
 		if err != nil {
 			t.Fatal(err)
@@ -235,6 +237,7 @@ func TestForceKeepsOthersFilesInReplacedFolders(t *testing.T) {
 	t.Run("file appears during the run", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "res")
 		mine(t, filepath.Join(out, "figures", "roc_curves.svg"))
+		earlierRun(t, out, "figures")
 		d, err := Open(out, true, nil)
 		if err != nil {
 			t.Fatal(err)

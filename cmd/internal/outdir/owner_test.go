@@ -66,6 +66,7 @@ func TestCleanDeadOnlyProvablyOurs(t *testing.T) {
 				where = out
 				os.MkdirAll(out, 0o755)
 				os.WriteFile(filepath.Join(out, "results.json"), []byte("old"), 0o644)
+				earlierRun(t, out, "results.json")
 			}
 			p := filepath.Join(where, c.folder)
 			os.MkdirAll(p, 0o755)
@@ -129,6 +130,7 @@ func TestRecordsMovedLast(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "res")
 	os.MkdirAll(filepath.Join(out, "figures"), 0o755)
 	os.WriteFile(filepath.Join(out, "results.json"), []byte("old"), 0o644)
+	earlierRun(t, out, "figures", "results.json")
 	d, err := Open(out, true, nil)
 	if err != nil {
 		t.Fatal(err)
@@ -143,8 +145,10 @@ func TestRecordsMovedLast(t *testing.T) {
 	if err := d.Finish(); err != nil {
 		t.Fatal(err)
 	}
-	if len(order) != 5 || order[4] != ".areasweep-done" || slices.Contains(order, OwnerName) {
-		t.Errorf("moved %v; want the marker last and no owner record", order)
+	// The record of what runs wrote (recordName) goes in with the marker,
+	// after every output.
+	if len(order) != 6 || order[4] != ".areasweep-done" || order[5] != recordName || slices.Contains(order, OwnerName) {
+		t.Errorf("moved %v; want the marker and the record last and no owner record", order)
 	}
 	if b, _ := os.ReadFile(filepath.Join(out, ".areasweep-done")); string(b) != "new" {
 		t.Error("marker not moved in")

@@ -37,6 +37,7 @@ func TestRestoreKilledReplace(t *testing.T) {
 			}
 			put(out, old)
 			put(out, map[string]string{"notes.txt": "mine"})
+			earlierRun(t, out, "results.json", "report.html", "figures", "run.log")
 			d, err := Open(out, true, nil)
 			if err != nil {
 				t.Fatal(err)
