@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"path/filepath"
 	"regexp"
 	"runtime"
 	"strconv"
@@ -209,9 +210,9 @@ func Register() {
 
 // Errors about the model grid.
 var (
-	ErrNoCRS     = errors.New("extent: raster has no coordinate reference system; assign one (e.g. gdal_edit.py -a_srs EPSG:4326 FILE)")
+	ErrNoCRS     = errors.New("extent: raster has no coordinate reference system")
 	ErrRotated   = errors.New("extent: raster geotransform is rotated; warp it to a north-up grid first (gdalwarp)")
-	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude")
+	ErrWideGrid  = errors.New("extent: raster spans more than 360 degrees of longitude, so some cells lie over others; clip it to one turn, e.g. gdal_translate -projwin -180 90 180 -90 IN OUT")
 	ErrGridsDiff = errors.New("extent: model rasters are not on one grid")
 	// ErrCRSMissing is ErrNoCRS for a raster that holds no CRS at all (not
 	// an undefined one, nor one PROJ cannot read): it has ErrNoCRS's
@@ -344,7 +345,7 @@ func OpenGrid(path string) (*Grid, error) {
 		return nil, fmt.Errorf("%s: %w", path, ErrCRSMissing)
 	}
 	if undefinedCRS(wkt) {
-		return nil, fmt.Errorf("%s: its CRS is undefined (%s): %w", path, crsName(wkt), ErrNoCRS)
+		return nil, fmt.Errorf("%s: its CRS is undefined (%s): %w; assign the one it is in, e.g. gdal_translate -a_srs EPSG:4326 %s %s", path, crsName(wkt), ErrNoCRS, path, strings.TrimSuffix(path, filepath.Ext(path))+"_crs.tif")
 	}
 	st := ds.Structure()
 	g, err := NewGrid(st.SizeX, st.SizeY, gt, wkt)
@@ -387,7 +388,7 @@ func NewGrid(width, height int, gt [6]float64, crs string) (*Grid, error) {
 			return nil, fmt.Errorf("extent: raster's west edge is at longitude %g; a latitude-longitude grid must start within -540..540 degrees", gt[0])
 		}
 		if gt[3] > 90+1e-9 || gt[3]+float64(height)*gt[5] < -90-1e-9 {
-			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f)", gt[3], gt[3]+float64(height)*gt[5])
+			return nil, fmt.Errorf("extent: raster latitudes run past the poles (top %.6f, bottom %.6f), where no cell can lie; check its geotransform (gdalinfo), or clip it to -90..90, e.g. gdal_translate -projwin WEST 90 EAST -90 IN OUT", gt[3], gt[3]+float64(height)*gt[5])
 		}
 		// Its longitudes and latitudes are taken as WGS84's: a CRS that
 		// PROJ cannot relate to WGS84 (another planet's) is not on Earth.

@@ -155,6 +155,12 @@ func TestBadRastersAndLayers(t *testing.T) {
 		}
 		os.WriteFile(ncCut, b[:len(b)/2], 0o644)
 	}
+	// Grids no cell of which can be placed: past a pole, around the globe
+	// more than once, in a local (engineering) CRS. Each refusal said what
+	// was wrong but not what to do (or, for the local CRS, gave 'FILE').
+	pastPole := f.rasterWith(t, "pastpole.tif", [6]float64{10, 0.25, 0, -67, 0, -0.75}, wgs84WKT, ridge)
+	tooWide := f.rasterWith(t, "toowide.tif", [6]float64{-180, 7.6, 0, 47.875, 0, -0.25}, wgs84WKT, ridge)
+	local := f.rasterWith(t, "local.tif", [6]float64{0, 1000, 0, 32000, 0, -1000}, `LOCAL_CS["site grid",UNIT["metre",1]]`, ridge)
 	// Longitudes and latitudes on Mars: PROJ relates them to no Earth CRS.
 	const marsWKT = `GEOGCS["Mars 2000",DATUM["D_Mars_2000",SPHEROID["Mars_2000_IAU_IAG",3396190.0,169.89444722361179]],PRIMEM["Greenwich",0],UNIT["Decimal_Degree",0.0174532925199433]]`
 	mars := f.rasterWith(t, "mars.tif", f.gt, marsWKT, ridge)
@@ -348,6 +354,9 @@ func TestBadRastersAndLayers(t *testing.T) {
 		{name: "model whose scale overflows at the points", args: f.withModel(scaleHuge), code: 2, words: []string{"model m", "scalehuge.tif declares a scale of 1e+308", "beyond the largest number a float64 holds", "gdal_translate -a_scale"}},
 		{name: "model whose scale overflows away from the points", args: f.withModel(scaleHugeLastRow), code: 2, words: []string{"model m", "scalehugerow.tif declares a scale of 1e+300", "its stored value 1.0000000150474662e+30", "beyond the largest number"}},
 		{name: "model a classic netCDF file cut short", args: f.withModel(ncCut), code: 2, words: []string{"model m", "cut3.nc", "classic netCDF file whose header says its values take", "cut short"}},
+		{name: "model past a pole", args: f.withModel(pastPole), code: 2, words: []string{"model m", "pastpole.tif", "run past the poles (top -67.000000, bottom -91.000000)", "gdal_translate -projwin"}},
+		{name: "model around the globe more than once", args: f.withModel(tooWide), code: 2, words: []string{"model m", "toowide.tif", "more than 360 degrees of longitude", "gdal_translate -projwin -180 90 180 -90"}},
+		{name: "model in a local CRS", args: f.withModel(local), code: 2, words: []string{"model m", "local.tif: its CRS is undefined (site grid)", "gdal_translate -a_srs EPSG:4326 " + local + " "}},
 		{name: "model on Mars", args: f.withModel(mars), code: 2, words: []string{"model m", "mars.tif", "Mars 2000", "cannot be transformed to or from WGS84", "same celestial body"}},
 		{name: "region on Mars", args: f.withRegion(marsRegion), code: 2, words: []string{"region: ", "mars.gpkg: cannot be reprojected to the raster CRS", "same celestial body", "check that the layer's CRS is right"}},
 		{name: "extra layer on Mars", args: f.run("--extra", "x="+marsRegion), code: 2, words: []string{"extra x: ", "mars.gpkg: cannot be reprojected"}},
