@@ -70,6 +70,9 @@ func newBatchCmd(streams *IO, runF func(*BatchOptions) error) *cobra.Command {
 		Args:    cobra.MaximumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			if opts.Template {
+				if len(args) > 0 {
+					return fault.BadInput(fmt.Errorf("--template prints an example table and takes no table, got %q: write it into a file with areasweep batch --template > %s", args[0], args[0]))
+				}
 				return inputs.WriteBatchTemplate(opts.IO.Out)
 			}
 			if len(args) == 0 {

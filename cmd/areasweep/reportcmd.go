@@ -1,10 +1,13 @@
 package main
 
 import (
+	"errors"
 	"fmt"
+	"strings"
 
 	"github.com/spf13/cobra"
 
+	"areasweep/cmd/internal/fault"
 	"areasweep/cmd/internal/rerender"
 )
 
@@ -42,6 +45,11 @@ with --force.`,
 }
 
 func reportRun(o *ReportOptions) error {
+	if strings.TrimSpace(o.Dir) == "" {
+		// 'areasweep report ""' (a shell variable left unset) said
+		// "areasweep:  does not exist".
+		return fault.BadInput(errors.New("the folder to report on is empty; name the --out directory of a finished run (areasweep report DIR)"))
+	}
 	// From the start: a signal while results.json is read said "this
 	// run's partial results were removed and --out was left as it was".
 	note := fmt.Sprintf("the report files in %s were left as they were", o.Dir)

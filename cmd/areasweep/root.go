@@ -368,10 +368,10 @@ func suggestFlag(c *cobra.Command, name string) string {
 	return inputs.Closest(name, names)
 }
 
-// givenTwiceError matches pflag's message for a flag given twice
-// (onceString), whose own words say it all: pflag's "invalid argument
+// givenTwiceError matches pflag's message for a flag given twice, or a
+// path flag given empty (onceString), whose own words say it all: pflag's "invalid argument
 // ... for ... flag:" before them is cut.
-var givenTwiceError = regexp.MustCompile(`^invalid argument ".*" for ".*" flag: (--[a-z-]+ is given twice .*)$`)
+var givenTwiceError = regexp.MustCompile(`^invalid argument ".*" for ".*" flag: (--[a-z-]+ is (?:given twice|empty;) .*)$`)
 
 // numberError matches pflag's message for a flag value Go cannot parse,
 // which quotes Go's own parser ("strconv.ParseUint: parsing ..."): the

@@ -216,6 +216,11 @@ type onceString struct {
 	p    *string
 	name string
 	set  bool
+	// empty, when set, refuses an empty value with these words after the
+	// flag's name: a path flag given "" (a shell variable left unset)
+	// would otherwise read as not given, and a study file's value would
+	// be dropped or taken without a word.
+	empty string
 }
 
 func (o *onceString) String() string {
@@ -226,6 +231,9 @@ func (o *onceString) String() string {
 }
 
 func (o *onceString) Set(s string) error {
+	if s == "" && o.empty != "" {
+		return fmt.Errorf("--%s is empty; %s", o.name, o.empty)
+	}
 	if o.set && s != *o.p {
 		return fmt.Errorf("--%s is given twice (%q, then %q); only one is used: give it once", o.name, *o.p, s)
 	}
@@ -244,11 +252,18 @@ func bindRunFlags(f *pflag.FlagSet, o *RunOptions) { bindSweepFlags(f, o, true) 
 // help, which shows only the flags that change the family or the files it
 // writes.
 func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
-	f.Var(&onceString{p: &o.Study, name: "study"}, "study", "study `FILE` (YAML) whose keys are these flag names")
+	f.Var(&onceString{p: &o.Study, name: "study", empty: "name a study file, or leave the flag out"}, "study", "study `FILE` (YAML) whose keys are these flag names")
 	for _, s := range settings.Table {
 		switch p := s.Field(&o.Values).(type) {
 		case *string:
-			f.Var(&onceString{p: p, name: s.Name}, s.Name, s.Usage)
+			of := &onceString{p: p, name: s.Name}
+			switch {
+			case s.Name == "out":
+				of.empty = "name an output directory"
+			case s.Kind == settings.Path:
+				of.empty = "name a file, or leave the flag out (a study file's value is then used)"
+			}
+			f.Var(of, s.Name, s.Usage)
 		case *[]string:
 			f.StringArrayVar(p, s.Name, *p, s.Usage)
 		case *bool:

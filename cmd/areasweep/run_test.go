@@ -149,3 +149,30 @@ func TestMergeHelpNamesBuild(t *testing.T) {
 		}
 	}
 }
+
+// TestEmptyArguments: an empty folder for report, and a table given with
+// batch --template (which prints one and read none), are refused in
+// words: the first said "areasweep:  does not exist", the second was
+// ignored.
+func TestEmptyArguments(t *testing.T) {
+	study := write(t, t.TempDir(), "s.yaml", "model:\n  - a=a.tif\noccurrences: o.csv\nregion: r.gpkg\n")
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"report", ""}, "the folder to report on is empty"},
+		{[]string{"batch", "--template", "mine.csv"}, `--template prints an example table and takes no table, got "mine.csv"`},
+		// An empty path flag (a shell variable left unset) read as not
+		// given: over a study file's value it said "no occurrences
+		// given", or dropped the study's ecoregions without a word.
+		{[]string{"run", "--study", study, "--occurrences", ""}, "--occurrences is empty; name a file, or leave the flag out (a study file's value is then used)"},
+		{[]string{"run", "--study", study, "--ecoregions="}, "--ecoregions is empty"},
+		{[]string{"run", "--study", ""}, "--study is empty; name a study file"},
+		{[]string{"extents", "--study", study, "--region", ""}, "--region is empty"},
+	} {
+		out, se, code := runBin(t, c.args...)
+		if code != 2 || !strings.Contains(se, c.want) || out != "" {
+			t.Errorf("%q: exit %d, stdout %q, stderr %q; want 2 and %q", c.args, code, out, se, c.want)
+		}
+	}
+}

@@ -28,6 +28,10 @@ func TestBatchOutRefusedBeforeAnything(t *testing.T) {
 		{"line break, slurm", "runs\nold", true, "the path holds a line break"},
 		{"tab, slurm", "runs\told", true, "--out runs\told: with --slurm its path cannot hold a tab or a backslash"},
 		{"backslash, slurm", `runs\old`, true, `--out runs\old: with --slurm its path cannot hold a tab or a backslash`},
+		// The root folder: the table check said each input lay in
+		// the batch's --out (helper probe, 2026-12-05).
+		{"the root folder", "/", false, "--out / is the root folder"},
+		{"the root folder by another name", "/tmp/..", false, "--out /tmp/.. is the root folder"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Chdir(t.TempDir())

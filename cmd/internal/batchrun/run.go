@@ -102,6 +102,11 @@ func outPathError(o *Options) error {
 	if strings.ContainsAny(abs, "\n\r") {
 		return outdir.LineBreakError("--out", o.Out, abs)
 	}
+	if abs == filepath.Dir(abs) {
+		// Refused as run refuses it; the table check said each input
+		// "lies in /tmp, which this batch writes (--out /)".
+		return fmt.Errorf("--out %s is the root folder; name a folder for the batch's study folders and summary", o.Out)
+	}
 	if o.Slurm.Enabled && inputs.StreamPath(o.Table) {
 		return fmt.Errorf("the study table %s is a pipe or standard input; with --slurm each array task reads the table again by its path: save it to a file and name that", o.Table)
 	}
