@@ -63,10 +63,34 @@ func validate(file string, r *Results) error {
 	v.omissionsComplete(r)
 	v.points(r.Points, r.Grid)
 	v.pointCounts(r.PointCounts, r.Points)
+	v.testPointIDs(r)
 	if r.Preview != nil {
 		v.preview(r.Preview, len(r.Extents))
 	}
 	return v.err
+}
+
+// testPointIDs checks that each score's test_point_ids name test points
+// of points, as a run lists the test points it scored (by their line). An
+// id of none (edited in) was shown in the report as a point.
+func (v *validator) testPointIDs(r *Results) {
+	if len(r.Points) == 0 {
+		return
+	}
+	test := map[int]bool{}
+	for _, p := range r.Points {
+		if p.Role == vocab.RoleTest {
+			test[p.ID] = true
+		}
+	}
+	for i, s := range r.Scores {
+		for j, id := range s.TestPointIDs {
+			if !test[id] {
+				v.fail(fmt.Sprintf("scores[%d] (model %s, extent %s).test_point_ids[%d]", i, s.Model, s.Extent, j), "%d is the id of no test point in points (a run lists the test points it scored, by their line)", id)
+				return
+			}
+		}
+	}
 }
 
 // header checks the settings, the grid's size, the point counts, and
@@ -592,9 +616,13 @@ func (v *validator) settings(s Settings) {
 	// resolved below 1/0" and "from -5 full-size resamples".
 	if s.Iterations < 1 {
 		v.fail("settings.iterations", "%d is below 1; a run draws at least 1 resample (as --iterations takes it)", s.Iterations)
+	} else if s.Iterations > metrics.MaxIterations {
+		v.fail("settings.iterations", "%d is above %d, the most resamples a run draws (as --iterations takes it)", s.Iterations, metrics.MaxIterations)
 	}
 	if s.PairedResamples < 1 {
 		v.fail("settings.paired_resamples", "%d is below 1; a run draws as many paired resamples as --iterations, at least 1", s.PairedResamples)
+	} else if s.PairedResamples > metrics.MaxIterations {
+		v.fail("settings.paired_resamples", "%d is above %d; a run draws as many paired resamples as --iterations, at most %d", s.PairedResamples, metrics.MaxIterations, metrics.MaxIterations)
 	}
 	v.unit("settings.resample_fraction", s.ResampleFraction)
 	v.nonNeg("settings.boyce_window", s.BoyceWindow)
@@ -619,6 +647,7 @@ func (v *validator) score(at string, s Score) {
 		v.fail(at, "test_points is %d but test_point_ids, placements and placements_unweighted hold %d, %d and %d values",
 			s.TestPoints, len(s.TestPointIDs), len(s.Placements), len(s.PlacementsUnweighted))
 	}
+
 	v.unit(at+".auc", s.AUC)
 	v.unit(at+".auc_unweighted", s.AUCUnweighted)
 	v.unit(at+".auc_train", s.AUCTrain)

@@ -204,6 +204,12 @@ func TestValidateRefuses(t *testing.T) {
 		{"negative iterations", func(r *Results) { r.Settings.Iterations = -2 }, "settings.iterations: -2 is below 1"},
 		{"no paired resamples", func(r *Results) { r.Settings.PairedResamples = 0 }, "settings.paired_resamples: 0 is below 1"},
 		{"negative paired resamples", func(r *Results) { r.Settings.PairedResamples = -5 }, "settings.paired_resamples: -5 is below 1"},
+		// Accepted before (helper probe of 2026-12-05): more resamples
+		// than run takes, and a test point id naming no point, which the
+		// report showed.
+		{"iterations beyond a run's", func(r *Results) { r.Settings.Iterations = 1_000_000_000_000 }, "settings.iterations: 1000000000000 is above 1000000"},
+		{"paired resamples beyond a run's", func(r *Results) { r.Settings.PairedResamples = 1_000_001 }, "settings.paired_resamples: 1000001 is above 1000000"},
+		{"a test point id naming no point", func(r *Results) { r.Scores[0].TestPointIDs[0] = 999999 }, ".test_point_ids[0]: 999999 is the id of no test point in points"},
 		{"point outside with a cell", func(r *Results) {
 			r.Points[0].Status, r.Points[0].Row, r.Points[0].Col = "outside_raster", 2, 3
 		}, "a point outside the raster has row -1 and col -1"},
