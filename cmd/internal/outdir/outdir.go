@@ -338,11 +338,11 @@ func check(out string, force bool, inputs []string, demo bool, demoInputs, shard
 		return nil, false, err
 	}
 	d := &Dir{Out: filepath.Clean(out), force: force, Demo: demo, Shard: shard, demoInputs: demoInputs}
-	abs, err := filepath.Abs(d.Out)
+	abs, err := systemAbs(out)
 	if err != nil {
 		return nil, false, fault.BadInput(fmt.Errorf("--out %s is a relative path and %s", out, CwdGone))
 	}
-	d.abs = realPath(abs)
+	d.abs = abs
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
 	if d.abs == d.parent {
 		return nil, false, fault.BadInput(fmt.Errorf("--out %s is the root folder; name a folder for the results", out))
@@ -432,11 +432,11 @@ func (d *Dir) lengthError(out string) error {
 // folders before any run opens them (a batch, each study's folder before
 // the first study runs); nil when out is fine or cannot be resolved.
 func LengthError(out string) error {
-	abs, err := filepath.Abs(filepath.Clean(out))
+	abs, err := systemAbs(out)
 	if err != nil {
 		return nil
 	}
-	d := &Dir{Out: filepath.Clean(out), abs: realPath(abs)}
+	d := &Dir{Out: filepath.Clean(out), abs: abs}
 	d.parent, d.name = filepath.Dir(d.abs), filepath.Base(d.abs)
 	return d.lengthError(out)
 }
@@ -646,32 +646,74 @@ func Cause(err error) error {
 	return err
 }
 
-// realPath resolves symbolic links in the longest existing prefix of an
-// absolute path, so that two spellings of one folder compare equal.
-func realPath(abs string) string {
-	rest := ""
-	p := abs
-	for {
-		if r, err := filepath.EvalSymlinks(p); err == nil {
-			return filepath.Join(r, rest)
-		}
-		parent := filepath.Dir(p)
-		if parent == p {
-			return abs
-		}
-		rest = filepath.Join(filepath.Base(p), rest)
-		p = parent
-	}
-}
-
-// RealPath is path made absolute, with the symbolic links of its longest
-// existing prefix resolved.
+// RealPath is path made absolute as the system resolves it (systemAbs),
+// with the symbolic links of its longest existing prefix resolved.
 func RealPath(path string) string {
-	abs, err := filepath.Abs(path)
+	abs, err := systemAbs(path)
 	if err != nil {
 		return path
 	}
-	return realPath(abs)
+	return abs
+}
+
+// maxLinkHops bounds the symbolic links systemAbs follows in one path, as
+// the kernel's own bound (40 on Linux) does.
+const maxLinkHops = 40
+
+// systemAbs returns path made absolute as the system resolves it: the
+// current folder's real path, then each name in turn, a symbolic link
+// replaced by its target before the names after it, so that a ".." after
+// a link goes up from where the link points (lnk/../x lies beside the
+// link's target, where mkdir lnk/../x makes it), not from where the link
+// is, as filepath.Abs's cleaning of the text has it. From the first name
+// that does not exist (or is a link to nothing) the rest is joined as
+// written, cleaned. Every other symbolic link is resolved.
+func systemAbs(path string) (string, error) {
+	cur := string(filepath.Separator)
+	if !filepath.IsAbs(path) {
+		wd, err := os.Getwd()
+		if err != nil {
+			return "", err
+		}
+		if r, err := filepath.EvalSymlinks(wd); err == nil {
+			wd = r
+		}
+		cur = wd
+	}
+	names := strings.Split(path, string(filepath.Separator))
+	hops := 0
+	for i := 0; i < len(names); i++ {
+		switch n := names[i]; n {
+		case "", ".":
+			continue
+		case "..":
+			cur = filepath.Dir(cur)
+			continue
+		}
+		next := filepath.Join(cur, names[i])
+		st, err := os.Lstat(next)
+		if err != nil {
+			return filepath.Join(append([]string{next}, names[i+1:]...)...), nil
+		}
+		if st.Mode()&os.ModeSymlink == 0 {
+			cur = next
+			continue
+		}
+		target, err := os.Readlink(next)
+		_, serr := os.Stat(next)
+		if hops++; err != nil || serr != nil || hops > maxLinkHops {
+			// A link that cannot be read, whose target does not exist
+			// (danglingLink names it), or a loop: the rest as written,
+			// the link kept, as the kernel would not follow it.
+			return filepath.Join(append([]string{next}, names[i+1:]...)...), nil
+		}
+		if filepath.IsAbs(target) {
+			cur = string(filepath.Separator)
+		}
+		names = append(strings.Split(target, string(filepath.Separator)), names[i+1:]...)
+		i = -1
+	}
+	return cur, nil
 }
 
 // Inside reports whether path is the folder dir or lies inside it, both
@@ -699,7 +741,7 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 		if in == "" || isRemote(in) {
 			continue
 		}
-		if a, err := filepath.Abs(in); err == nil {
+		if a, err := systemAbs(in); err == nil {
 			local = append(local, input{in, a})
 		}
 	}
@@ -708,7 +750,7 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 			out, in, filepath.Join(filepath.Dir(outAbs), filepath.Base(outAbs)+"-results")))
 	}
 	for _, in := range local {
-		a := realPath(in.abs)
+		a := in.abs
 		switch {
 		case within(filepath.Dir(a), outAbs):
 			return holds(in.named)
@@ -724,7 +766,11 @@ func checkOutVsInputs(outAbs, out string, inputs []string) error {
 	// (results.json, scores.csv). After the files themselves, so that a
 	// file in --out (a sidecar GDAL found beside the link) is named first.
 	for _, in := range local {
-		if named := filepath.Join(realPath(filepath.Dir(in.abs)), filepath.Base(in.abs)); within(filepath.Dir(named), outAbs) {
+		dir, err := systemAbs(filepath.Dir(in.named))
+		if err != nil {
+			continue
+		}
+		if named := filepath.Join(dir, filepath.Base(in.named)); within(filepath.Dir(named), outAbs) {
 			return holds(in.named)
 		}
 	}
@@ -1275,8 +1321,8 @@ var activeStaged struct {
 // process lives is left alone.
 func Stage(dir string) (*Staged, error) {
 	abs := dir
-	if a, err := filepath.Abs(dir); err == nil {
-		abs = realPath(a)
+	if a, err := systemAbs(dir); err == nil {
+		abs = a
 	}
 	host, _ := os.Hostname()
 	if m, _ := filepath.Glob(filepath.Join(globEscape(dir), stagedPrefix+"*")); m != nil {

@@ -305,7 +305,7 @@ func TestStageRemovesDeadStaging(t *testing.T) {
 		t.Fatal(err)
 	}
 	host, _ := os.Hostname()
-	abs := realPath(dir)
+	abs := RealPath(dir)
 	rec := func(host string, pid int, start string) string {
 		return "out\t" + abs + "\nhost\t" + host + "\nboot\t" + bootID() + "\npid\t" + strconv.Itoa(pid) + "\nstart\t" + start + "\n"
 	}

@@ -74,7 +74,7 @@ func TestCleanDeadOnlyProvablyOurs(t *testing.T) {
 				os.WriteFile(filepath.Join(p, "results.json"), []byte("half"), 0o644)
 			}
 			if c.owner != nil {
-				os.WriteFile(filepath.Join(p, OwnerName), []byte(c.owner(realPath(out))), 0o644)
+				os.WriteFile(filepath.Join(p, OwnerName), []byte(c.owner(RealPath(out))), 0o644)
 			}
 			d, err := Open(out, c.inside, nil)
 			if err != nil {

@@ -171,3 +171,59 @@ func TestRecordFollowsRuns(t *testing.T) {
 		t.Errorf("after shard 1 again the record lists %v", got)
 	}
 }
+
+// TestSystemAbs: paths resolved as the system resolves them, name by
+// name: a ".." after a symbolic link goes up from the link's target (as
+// mkdir lnk/../x makes x beside the target); filepath.Abs's cleaning of
+// the text put lnk/../xo beside the link, while the inputs, opened by the
+// system, were read from beside the target (helper probe, 2026-12-05).
+func TestSystemAbs(t *testing.T) {
+	root, err := filepath.EvalSymlinks(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.MkdirAll(filepath.Join(root, "deep", "a"), 0o755)
+	os.Symlink(filepath.Join("deep", "a"), filepath.Join(root, "lnk"))          // relative target
+	os.Symlink(filepath.Join(root, "deep", "a"), filepath.Join(root, "abslnk")) // absolute target
+	os.Symlink("loop", filepath.Join(root, "loop"))
+	t.Chdir(root)
+	for _, c := range []struct{ in, want string }{
+		{"lnk/../xo", filepath.Join(root, "deep", "xo")},
+		{"abslnk/../xo", filepath.Join(root, "deep", "xo")},
+		{root + "/lnk/../../xo", filepath.Join(root, "xo")},
+		{"lnk", filepath.Join(root, "deep", "a")},
+		{"./deep/./a/", filepath.Join(root, "deep", "a")},
+		{"new/../x", filepath.Join(root, "x")}, // from a missing name on, as written
+		{"lnk/new/x", filepath.Join(root, "deep", "a", "new", "x")},
+		{"loop/x", filepath.Join(root, "loop", "x")}, // a loop: the rest as written
+		{"/", "/"},
+	} {
+		if got, err := systemAbs(c.in); err != nil || got != c.want {
+			t.Errorf("systemAbs(%q) = %q, %v; want %q", c.in, got, err, c.want)
+		}
+	}
+	// Open puts --out where the system would: beside the link's target.
+	d, err := Open("lnk/../xo", false, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(d.Stage, "results.json"), []byte("new"), 0o644)
+	if err := d.Finish(); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(filepath.Join(root, "deep", "xo", "results.json")); err != nil {
+		t.Errorf("--out lnk/../xo: %v", err)
+	}
+	if _, err := os.Stat(filepath.Join(root, "xo")); err == nil {
+		t.Error("--out lnk/../xo was made beside the link")
+	}
+	// An --out that the system resolves to the folder of an input is
+	// refused, however the input is written.
+	os.WriteFile(filepath.Join(root, "deep", "o.csv"), []byte("x"), 0o644)
+	if err := Check("lnk/..", true, []string{"deep/o.csv"}, nil); err == nil || !strings.Contains(err.Error(), "holds the input deep/o.csv") {
+		t.Errorf("--out lnk/.. with the input deep/o.csv: %v", err)
+	}
+	if err := Check("deep", true, []string{"lnk/../o.csv"}, nil); err == nil || !strings.Contains(err.Error(), "holds the input lnk/../o.csv") {
+		t.Errorf("--out deep with the input lnk/../o.csv: %v", err)
+	}
+}
