@@ -73,6 +73,15 @@ func asciiGridProblem(path string) (string, error) {
 			first = fields
 			break
 		}
+		if len(fields) >= 2 && (key == "cellsize" || key == "dx" || key == "dy") {
+			// GDAL takes a cell size of no more than 0 as given: a
+			// negative one reads as a grid running south to north (and
+			// east to west), refused as south-up, which says nothing of
+			// the header's mistake.
+			if v, perr := strconv.ParseFloat(fields[1], 64); perr == nil && !(v > 0) {
+				return fmt.Sprintf("has a header whose %s is %s (line %d); a cell size must be positive: write the cells' width (and height) as positive numbers", fields[0], fields[1], line), nil
+			}
+		}
 		if len(fields) >= 2 && (key == "ncols" || key == "nrows") {
 			n, perr := strconv.ParseInt(fields[1], 10, 64)
 			if perr != nil || n <= 0 {

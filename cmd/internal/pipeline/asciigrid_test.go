@@ -40,6 +40,8 @@ func TestASCIIGridCells(t *testing.T) {
 		{"a Windows NaN", head + "1 2 3\n4 1.#QNAN 6\n", `line 8 holds "1.#QNAN"`},
 		{"hexadecimal", head + "1 2 3\n4 0x1p-2 6\n", `line 8 holds "0x1p-2"`},
 		{"two dots", head + "1 2 3\n4 1.2.3 6\n", `line 8 holds "1.2.3"`},
+		{"negative cell size", "ncols 3\nnrows 2\nxllcorner 0\nyllcorner 0\ncellsize -1\n1 2 3\n4 5 6\n", "has a header whose cellsize is -1 (line 5); a cell size must be positive"},
+		{"zero dy", "ncols 3\nnrows 2\nxllcorner 0\nyllcorner 0\ndx 1\ndy 0\n1 2 3\n4 5 6\n", "has a header whose dy is 0 (line 6)"},
 		{"a value too many", head + "1 2 3 9\n4 5 6\n", "holds 7 values where its header's ncols 3 × nrows 2 make 6 (line 7 holds 4): a row with a value too many"},
 		{"cut short", head + "1 2 3\n4 -", "holds 5 values where its header's ncols 3 × nrows 2 make 6 (line 8 holds 2): the file was cut short"},
 		{"no grid: text", "lon,lat,role\n1,2,train\n", ""},
