@@ -138,17 +138,7 @@ func TestBadRastersAndLayers(t *testing.T) {
 	// A classic netCDF file cut short: GDAL read its missing cells as 0.
 	ncCut := filepath.Join(f.dir, "cut3.nc")
 	{
-		src, err := godal.Open(f.model)
-		if err != nil {
-			t.Fatal(err)
-		}
-		ds, err := src.Translate(ncCut, []string{"-of", "netCDF", "-co", "FORMAT=NC"})
-		src.Close()
-		if err != nil {
-			t.Fatal(err)
-		}
-		ds.Close()
-		os.Remove(ncCut + ".aux.xml")
+		toNetCDF(t, f.model, ncCut, "NC")
 		b, err := os.ReadFile(ncCut)
 		if err != nil {
 			t.Fatal(err)
@@ -492,17 +482,7 @@ func TestInputsReadAsDeclared(t *testing.T) {
 		// looks for ("HDF5-DIAG: Error detected in HDF5 ...") reached
 		// the terminal, 60 lines a run, though the file is valid.
 		nc := filepath.Join(s.dir, "model4.nc")
-		src, err := godal.Open(s.model)
-		if err != nil {
-			t.Fatal(err)
-		}
-		ds, err := src.Translate(nc, []string{"-of", "netCDF", "-co", "FORMAT=NC4"})
-		src.Close()
-		if err != nil {
-			t.Fatal(err)
-		}
-		ds.Close()
-		os.Remove(nc + ".aux.xml")
+		toNetCDF(t, s.model, nc, "NC4")
 		out := filepath.Join(outs, "nc4")
 		_, se, code := runBin(t, "run", "--iterations", "20", "--region-buffers=-40,60", "--point-buffers", "40", "--hull-buffers", "0", "--out", out,
 			"--occurrences", s.occ, "--model", "m="+nc, "--region", s.region)
@@ -527,4 +507,22 @@ func TestInputsReadAsDeclared(t *testing.T) {
 			t.Error("scores.csv differs from the run on the plain polygon")
 		}
 	})
+}
+
+// toNetCDF writes the raster src as a netCDF file dst in GDAL's format
+// (NC: classic CDF-1, NC2, NC4), without the .aux.xml GDAL leaves beside
+// it.
+func toNetCDF(t *testing.T, src, dst, format string) {
+	t.Helper()
+	in, err := godal.Open(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := in.Translate(dst, []string{"-of", "netCDF", "-co", "FORMAT=" + format})
+	in.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds.Close()
+	os.Remove(dst + ".aux.xml")
 }

@@ -270,13 +270,8 @@ func foreignError(out string, found []string) error {
 		}
 	}
 	dir := strings.Join(dirs, " and ")
-	more := ""
-	if len(found) > 3 {
-		more = fmt.Sprintf(" and %d more", len(found)-3)
-		found = found[:3]
-	}
-	return fmt.Errorf("--out %s holds %s%s, not written by areasweep, in %s, which --force replaces as a whole; "+
-		"move it out of %s, or choose another --out", out, strings.Join(found, ", "), more, dir, dir)
+	return fmt.Errorf("--out %s holds %s, not written by areasweep, in %s, which --force replaces as a whole; "+
+		"move it out of %s, or choose another --out", out, firstThree(found), dir, dir)
 }
 
 func open(out string, force bool, inputs []string, demo bool, demoInputs, shard []string) (*Dir, error) {

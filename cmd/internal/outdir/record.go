@@ -120,11 +120,14 @@ func (d *Dir) unrecorded(names []string) []string {
 
 // unrecordedError is the refusal of the entries unrecorded found.
 func unrecordedError(out string, found []string) error {
-	more := ""
-	if len(found) > 3 {
-		more = fmt.Sprintf(" and %d more", len(found)-3)
-		found = found[:3]
+	return fmt.Errorf("--out %s holds %s, which no areasweep run wrote there (its record of what runs wrote, %s, does not list them), and --force replaces only what areasweep wrote; "+
+		"move them out of %s (or remove them yourself if they are an earlier run's), or choose another --out", out, firstThree(found), recordName, out)
+}
+
+// firstThree lists up to three of paths, then how many more there are.
+func firstThree(paths []string) string {
+	if len(paths) > 3 {
+		return fmt.Sprintf("%s and %d more", strings.Join(paths[:3], ", "), len(paths)-3)
 	}
-	return fmt.Errorf("--out %s holds %s%s, which no areasweep run wrote there (its record of what runs wrote, %s, does not list them), and --force replaces only what areasweep wrote; "+
-		"move them out of %s (or remove them yourself if they are an earlier run's), or choose another --out", out, strings.Join(found, ", "), more, recordName, out)
+	return strings.Join(paths, ", ")
 }
