@@ -148,63 +148,45 @@ func floatListVar(fs *pflag.FlagSet, p *[]float64, name string, value []float64,
 	fs.Var(&floatList{p: p, name: name}, name, usage)
 }
 
-// wholeFlag is an int flag that takes a whole number as the study file
-// takes the same key (inputs.ParseWhole: decimal digits, so "0701" is 701
-// where pflag's int flags read octal 449, and "1e3" and "1000.0" too). Its
-// errors are strconv.ParseInt's, worded by the root's flag error hook.
-type wholeFlag struct{ p *int }
+// wholeFlag is a whole-number flag read as the study file reads the
+// same key, in decimal digits (inputs.ParseWhole for an int, which takes
+// "1e3" and "1000.0" too, inputs.ParseWholeUint for a uint64): pflag's
+// own int flags read "0701" as octal 449. Its errors are strconv's,
+// worded by the root's flag error hook.
+type wholeFlag[T int | uint64] struct {
+	p     *T
+	parse func(string) (T, error)
+	typ   string
+}
+
+func (w wholeFlag[T]) String() string {
+	if w.p == nil {
+		return "0"
+	}
+	return fmt.Sprint(*w.p)
+}
+
+func (w wholeFlag[T]) Set(s string) error {
+	v, err := w.parse(s)
+	if err != nil {
+		return err
+	}
+	*w.p = v
+	return nil
+}
+
+func (w wholeFlag[T]) Type() string { return w.typ }
 
 // wholeVar binds an int flag read by wholeFlag, with its default.
 func wholeVar(fs *pflag.FlagSet, p *int, name string, value int, usage string) {
 	*p = value
-	fs.Var(wholeFlag{p}, name, usage)
+	fs.Var(wholeFlag[int]{p, inputs.ParseWhole, "int"}, name, usage)
 }
 
-func (w wholeFlag) String() string {
-	if w.p == nil {
-		return "0"
-	}
-	return strconv.Itoa(*w.p)
-}
-
-func (w wholeFlag) Set(s string) error {
-	v, err := inputs.ParseWhole(s)
-	if err != nil {
-		return err
-	}
-	*w.p = v
-	return nil
-}
-
-func (w wholeFlag) Type() string { return "int" }
-
-// wholeUintFlag is a uint64 flag read in decimal digits
-// (inputs.ParseWholeUint), as the study file reads the same key; pflag's
-// own reads "0701" as octal 449.
-type wholeUintFlag struct{ p *uint64 }
-
-func (w wholeUintFlag) String() string {
-	if w.p == nil {
-		return "0"
-	}
-	return strconv.FormatUint(*w.p, 10)
-}
-
-func (w wholeUintFlag) Set(s string) error {
-	v, err := inputs.ParseWholeUint(s)
-	if err != nil {
-		return err
-	}
-	*w.p = v
-	return nil
-}
-
-func (w wholeUintFlag) Type() string { return "uint" }
-
-// wholeUintVar binds a uint64 flag read by wholeUintFlag, with its default.
+// wholeUintVar binds a uint64 flag read by wholeFlag, with its default.
 func wholeUintVar(fs *pflag.FlagSet, p *uint64, name string, value uint64, usage string) {
 	*p = value
-	fs.Var(wholeUintFlag{p}, name, usage)
+	fs.Var(wholeFlag[uint64]{p, inputs.ParseWholeUint, "uint"}, name, usage)
 }
 
 // onceString is a string flag that may be given once: given again with
@@ -269,7 +251,7 @@ func bindSweepFlags(f *pflag.FlagSet, o *RunOptions, scoring bool) {
 		case *bool:
 			f.BoolVar(p, s.Name, *p, s.Usage)
 		case *int:
-			f.Var(wholeFlag{p}, s.Name, s.Usage)
+			wholeVar(f, p, s.Name, *p, s.Usage)
 		case *uint64:
 			wholeUintVar(f, p, s.Name, *p, s.Usage)
 		case *float64:
