@@ -822,16 +822,27 @@ func (a *analysis) modelInterval(k MetricKind, key, model, null string, g *NullG
 // of the AUC's 95% interval reads it (our choice).
 const randomPCutoff = 0.025
 
+// MinRandomDraws is the fewest formed draws an area-random p-value is
+// read on (our cut-off): from d draws the smallest p is 1/(1+d), which
+// is below randomPCutoff only from d = 40 on, so a p of fewer draws could
+// never read a model as above random, and counting it as a test that the
+// model failed would say what the draws cannot tell.
+const MinRandomDraws = 40
+
+// randomRead reports whether pr's area-random p-value is read: computed,
+// from at least MinRandomDraws formed draws.
+func randomRead(pr PartialROC) bool { return pr.PRandom > 0 && pr.RandomFormed >= MinRandomDraws }
+
 // modelPRandom is the area-random p-value of the model's own partial ROC
 // ratio at key on g's extent when it was computed on exactly g's common
-// test points, else 0.
+// test points and from at least MinRandomDraws draws, else 0.
 func (a *analysis) modelPRandom(key, model, null string, g *NullGap) float64 {
 	sc, ns := findScore(a.r, model, g.Extent), findScore(a.r, null, g.Extent)
 	if sc == nil || ns == nil || sc.TestPoints != g.CommonPoints {
 		return 0
 	}
 	for _, pr := range sc.PartialROC {
-		if MetricKeyPartialROC(pr.E) == key && pr.Defined {
+		if MetricKeyPartialROC(pr.E) == key && pr.Defined && randomRead(pr) {
 			return pr.PRandom
 		}
 	}

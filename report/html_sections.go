@@ -497,7 +497,7 @@ func scoresSection(r *Results) scoresView {
 	v := scoresView{Iterations: st.Iterations, ResamplePercent: fmtG(100 * st.ResampleFraction), NullNote: nullThresholdNote(r),
 		BootstrapNote: bootstrapNote(st), PublishedPSize: PublishedPSize}
 	draws := metrics.RandomDraws(st.Iterations)
-	v.RandomNote = fmt.Sprintf("The last column is a calibrated test: the one-sided p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; a model that knows nothing of where the species is), which on a model with no skill falls below 0.05 in about 5%% of studies (README).", draws, Plural(draws))
+	v.RandomNote = fmt.Sprintf("The last column is a calibrated test: the one-sided p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (%d draw%s; a model that knows nothing of where the species is), which on a model with no skill falls below 0.05 in about 5%% of studies (README); one from fewer than %d formed draws is not read (our cut-off: it could not fall below %s).", draws, Plural(draws), MinRandomDraws, fmtG(randomPCutoff))
 	if randomTestAbsent(r) {
 		v.RandomNote = "The last column is empty: " + noRandomTest + "."
 	}
@@ -551,6 +551,8 @@ func scoresSection(r *Results) scoresView {
 			}
 			row = append(row, cell{text: fmt.Sprintf("%d of %d", pr.Iterations-pr.NotFormed, pr.Iterations), num: float64(pr.Iterations - pr.NotFormed), isN: true, cls: "n"})
 			switch {
+			case pr.PRandom > 0 && !randomRead(pr):
+				row = append(row, cell{text: fmt.Sprintf("not read: %d draw%s formed a ratio, fewer than %d (our cut-off)", pr.RandomFormed, Plural(pr.RandomFormed), MinRandomDraws)})
 			case pr.PRandom > 0:
 				row = append(row, cell{text: fmtP(pr.PRandom), num: pr.PRandom, isN: true, cls: "n"})
 			case pr.PRandomNote != "":

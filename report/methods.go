@@ -619,16 +619,23 @@ func randomTestAbsent(r *Results) bool {
 }
 
 // randomTestCount says on how many of the extents where model's partial
-// ROC ratio at e was tested against random (PartialROC.PRandom) it lay
-// above (p below randomPCutoff), or "" where it was tested on none.
+// ROC ratio at e was tested against random (PartialROC.PRandom, read
+// from at least MinRandomDraws draws) it lay above (p below
+// randomPCutoff); where none was read, that it was not tested because
+// too few draws formed a ratio, or "" when none was computed.
 func randomTestCount(r *Results, model string, e float64) string {
-	tested, above := 0, 0
+	tested, above, few, most := 0, 0, 0, 0
 	for _, sc := range r.Scores {
 		if sc.Model != model || !sc.Scored {
 			continue
 		}
 		for _, pr := range sc.PartialROC {
-			if pr.E == e && pr.Defined && pr.PRandom > 0 {
+			switch {
+			case pr.E != e || !pr.Defined || pr.PRandom == 0:
+			case !randomRead(pr):
+				few++
+				most = max(most, pr.RandomFormed)
+			default:
 				tested++
 				if pr.PRandom < randomPCutoff {
 					above++
@@ -638,6 +645,8 @@ func randomTestCount(r *Results, model string, e float64) string {
 	}
 	const random = "that of as many test records drawn at random over the extent's area"
 	switch {
+	case tested == 0 && few > 0:
+		return fmt.Sprintf(", and it was not tested against %s: at most %d draw%s formed a ratio on an extent, fewer than the %d (our cut-off) from which a p-value can fall below %s", random, most, Plural(most), MinRandomDraws, fmtG(randomPCutoff))
 	case tested == 0:
 		return ""
 	case tested == 1:

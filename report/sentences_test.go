@@ -2191,9 +2191,15 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 		{"p computed on other test points", 39, 0.01, 1.05, VsRandomPointAbove},
 		{"no p (a bootstrap wholly above 1 is not read)", 40, 0, 1.05, VsRandomPointAbove},
 		{"at or below 1", 40, 0.01, 0.95, VsRandomAtOrBelow},
+		// From 39 draws the p, at least 1/40, is not read.
+		{"p from too few draws", 40, 0.025, 1.05, VsRandomPointAbove},
 	}
 	for _, c := range cases {
-		r.Scores[0].PartialROC[0].PRandom = c.pRandom
+		formed := 200
+		if c.name == "p from too few draws" {
+			formed = 39
+		}
+		r.Scores[0].PartialROC[0].PRandom, r.Scores[0].PartialROC[0].RandomFormed = c.pRandom, formed
 		g := NullGap{Extent: "base", Defined: true, CommonPoints: c.common, ModelValue: c.value, Reading: ReadingAbove}
 		a.setModelVsRandom(MetricPartialROC, key, "m", DistanceNullName, &g)
 		wantP := 0.0
@@ -2284,7 +2290,7 @@ func TestPublishedPCaution(t *testing.T) {
 	r.Scores[1].PartialROC[0].PRandomNote = "a reason"
 	checkWords(t, "methods", methodsText(r), []string{"that interval and p-value describe the published method and are no calibrated test of the ratio against 1 (on a model with no skill p fell below 0.05 in " + PublishedPSize + " in our simulation)",
 		"as the test of the ratio against random we give the one-sided Monte Carlo p-value of the full-sample ratio against the ratios of as many test records drawn at random over the extent's area (200 draws; Davison & Hinkley 1997)"}, nil)
-	r.Scores[0].PartialROC[0].PRandom = 0.0123
+	r.Scores[0].PartialROC[0].PRandom, r.Scores[0].PartialROC[0].RandomFormed = 0.0123, 200
 	r.Scores[1].PartialROC[0].PRandomNote = "a reason"
 	// The methods' results count the extents where a model's ratio was
 	// tested and lay above random: the sample's first score alone has a
@@ -2298,8 +2304,18 @@ func TestPublishedPCaution(t *testing.T) {
 			break
 		}
 	}
-	r.Scores[second].PartialROC[0].PRandom = 0.3
+	r.Scores[second].PartialROC[0].PRandom, r.Scores[second].PartialROC[0].RandomFormed = 0.3, 200
 	checkWords(t, "methods results", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on 1 of the 2 extents where it was tested (one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"}, nil)
+	// A p from fewer than 40 formed draws is not read: 1/(1+d) is not
+	// below 0.025 for d < 40, so it could not tell the model above random
+	// (helper audit of 2026-12-05: "on 0 of the 13 extents where it was
+	// tested" at --iterations 20, every p 1/21). With 39 draws on both
+	// extents: not tested, saying why; the table says "not read".
+	r.Scores[0].PartialROC[0].RandomFormed, r.Scores[second].PartialROC[0].RandomFormed = 39, 20
+	checkWords(t, "methods results, too few draws", methodsText(r), []string{"and it was not tested against that of as many test records drawn at random over the extent's area: at most 39 draws formed a ratio on an extent, fewer than the 40 (our cut-off) from which a p-value can fall below 0.025"}, []string{"extents where it was tested", "extent where it was tested"})
+	_, fewPage := writtenPage(t, r)
+	checkWords(t, "table, too few draws", fewPage, []string{"not read: 39 draws formed a ratio, fewer than 40 (our cut-off)"}, nil)
+	r.Scores[0].PartialROC[0].RandomFormed = 200
 	r.Scores[second].PartialROC[0].PRandom = 0
 	_, page := writtenPage(t, r)
 	checkWords(t, "table", page, []string{">0.012<", "not computed: a reason"}, nil)
