@@ -32,7 +32,11 @@ func (a *analysis) decompose(m MetricInfo) Decomposition {
 		return d
 	}
 	d.sumsOfSquares()
-	if d.SSTotal <= 0 {
+	if d.SSTotal <= 0 || allEqual(d.Values) {
+		// Equal values give sums of squares of rounding alone (ten
+		// omission rates of 0.1 have the grand mean 0.09999999999999999,
+		// and each share came out 100%).
+		d.SSTotal, d.SSExtent, d.SSModel, d.SSResidual = 0, 0, 0, 0
 		d.Note = "every model scores the same on every extent"
 		d.Sentence = fmt.Sprintf("%s is identical for every model and extent.", upperFirst(m.Label))
 		return d
@@ -147,6 +151,18 @@ func (d *Decomposition) sumsOfSquares() {
 		dv := rowMean[i] - gm
 		d.SSModel += float64(J) * dv * dv
 	}
+}
+
+// allEqual reports whether every value of the table is the same number.
+func allEqual(values [][]float64) bool {
+	for _, row := range values {
+		for _, v := range row {
+			if v != values[0][0] {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 func orderByRank(models []string, ranks []float64) []string {

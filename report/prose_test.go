@@ -1130,3 +1130,31 @@ func TestAUCBelowRandomBeyondNoise(t *testing.T) {
 		t.Errorf("AUC 0.46 (SE 0.02, 40 points) read below random: %q", c)
 	}
 }
+
+// TestDecompositionEqualNonZeroValues: a score equal to a number other
+// than 0 on every model and extent (an omission rate of 0.1 throughout,
+// helper audit of 2026-12-05) is identical too: its grand mean came out
+// 0.09999999999999999, the sums of squares of rounding alone, and the
+// sentence split it into "extent 100%, model 100% and non-additive 100%".
+func TestDecompositionEqualNonZeroValues(t *testing.T) {
+	r := loadSample(t)
+	for i := range r.Scores {
+		for j := range r.Scores[i].Thresholds {
+			r.Scores[i].Thresholds[j].Omission = 0.1
+		}
+	}
+	s := analyzed(t, r)
+	n := 0
+	for _, d := range s.Decompositions {
+		if !strings.HasPrefix(d.Metric, "omission_") {
+			continue
+		}
+		n++
+		if d.Defined || d.ShareExtent != 0 || !strings.Contains(d.Sentence, "is identical for every model and extent") {
+			t.Errorf("%s: defined %v, shares %g %g %g: %s", d.Metric, d.Defined, d.ShareExtent, d.ShareModel, d.ShareResidual, d.Sentence)
+		}
+	}
+	if n == 0 {
+		t.Fatal("no omission decomposition")
+	}
+}
