@@ -251,8 +251,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	}
 	occDir := filepath.Join(f.dir, "occdir.csv")
 	os.Mkdir(occDir, 0o755)
-	// A folder named like a FileGDB passes the existence check; its
-	// checksum fails (it cannot be read as a file), after the points.
+	// An Esri File Geodatabase (a folder of files): it passed the
+	// existence check, then the checksums read it as one file and failed
+	// in Go's own words, twice ("read fake.gdb: read fake.gdb: is a
+	// directory"); now refused at once with the export to a GeoPackage.
 	fakeGDB := filepath.Join(f.dir, "fake.gdb")
 	os.Mkdir(fakeGDB, 0o755)
 
@@ -697,7 +699,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
-		{"region checksum fails", f.withRegion(fakeGDB), 2, []string{"region", "fake.gdb", "is a directory"}, "", ""},
+		{"region a File Geodatabase", f.withRegion(fakeGDB), 2, []string{"region: " + fakeGDB + " is a File Geodatabase, a folder of many files", "ogr2ogr -f GPKG OUT.gpkg " + fakeGDB + " LAYER"}, "", ""},
 		{"occurrences bad and region checksum fails", []string{"run", "--model", "m=" + f.model, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n"), "--region", fakeGDB, "--iterations", "5"}, 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
 		{"region a zipped shapefile", f.withRegion(f.file("region.zip", "PK\x03\x04 not really")), 2, []string{"region.zip", "unzipped first"}, "", ""},
 		{"region a GDAL virtual path", f.withRegion("/vsizip/" + filepath.Join(f.dir, "region.zip") + "/region.shp"), 2, []string{"region", "/vsizip/", "local files only", "unzip"}, "", ""},

@@ -200,7 +200,7 @@ func TestMustExistTilde(t *testing.T) {
 // store or an ArcInfo binary grid, which GDAL reads as a raster) is
 // refused with the copy into one file that areasweep reads; before, the
 // message said only "is a directory, not a file". Other inputs keep their
-// words (a region's .gdb folder is a file geodatabase, read as such).
+// words (a region's .gdb folder is named as a File Geodatabase).
 func TestMustExistRasterFolder(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "suit.zarr")
 	if err := os.Mkdir(dir, 0o755); err != nil {

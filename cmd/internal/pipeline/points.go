@@ -534,7 +534,12 @@ func mustExist(what, path string) error {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file; areasweep reads a raster from one file (it records and rechecks each input's SHA-256): "+
 			"if it is a raster stored as a folder (a Zarr store, an ArcInfo binary grid), copy it into one file (e.g. gdal_translate %s OUT.tif) and give that file", what, path, shellArg(path)))
 	}
-	if st.IsDir() && !strings.HasSuffix(strings.ToLower(path), ".gdb") {
+	if st.IsDir() && strings.HasSuffix(strings.ToLower(strings.TrimRight(path, "/")), ".gdb") {
+		// An Esri File Geodatabase, a folder of files: the checksums
+		// read it as one file and failed ("read r.gdb: is a directory").
+		return fault.BadInput(fmt.Errorf("%s: %s is a File Geodatabase, a folder of many files; areasweep reads a polygon layer from one file (it records and rechecks each input's SHA-256): export the layer to a GeoPackage (e.g. ogr2ogr -f GPKG OUT.gpkg %s LAYER; ogrinfo %s lists the layers) and give that file", what, path, shellArg(path), shellArg(path)))
+	}
+	if st.IsDir() {
 		return fault.BadInput(fmt.Errorf("%s: %s is a directory, not a file%s", what, path, folderFiles(what, path)))
 	}
 	if !st.IsDir() && !st.Mode().IsRegular() && what != "occurrences" {
