@@ -266,6 +266,25 @@ func TestWrongKindOfFileAdvice(t *testing.T) {
 	check("no fields", err, `has no field "ECO": its features have no attribute fields at all`, "fields are:")
 	_, err = OpenGrid(notRaster)
 	check("not a raster", err, "give a GeoTIFF", "")
+	// A GeoPackage's fid names the features' id column, no field: OGR
+	// SQL read it as NULL on every feature, and the refusal said 40
+	// features had no value in it (helper probe of 2026-12-05).
+	units := filepath.Join(dir, "units.gpkg")
+	src, err := godal.Open(bare, godal.VectorOnly())
+	if err != nil {
+		t.Fatal(err)
+	}
+	dst, err := src.VectorTranslate(units, []string{"-f", "GPKG", "-sql", "SELECT 'a' AS unit_id, * FROM bare"})
+	src.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dst.Close()
+	for _, field := range []string{"fid", "FID"} {
+		_, _, err = ReadUnits(units, field, g)
+		check("fid", err, `has no field "`+field+`" (`+field+` names the features' id column`, "no value (NULL)")
+		check("fid", err, "fields are: unit_id", "")
+	}
 }
 
 // TestLongPathGeoPackage: a GeoPackage whose path is longer than SQLite

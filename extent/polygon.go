@@ -719,7 +719,11 @@ func (s *polygonSource) featureID(f *godal.Feature, fid int) (string, error) {
 			}
 			return "", fmt.Errorf("extent: %s has no field %q: its features have no attribute fields at all; give the polygon layer that carries the unit ids", path, field)
 		}
-		return "", fmt.Errorf("extent: %s has no field %q; fields are: %s", path, field, strings.Join(names, ", "))
+		fid := ""
+		if strings.EqualFold(field, "fid") || strings.EqualFold(field, "ogc_fid") {
+			fid = fmt.Sprintf(" (%s names the features' id column, which numbers the features and is no field of their attributes)", field)
+		}
+		return "", fmt.Errorf("extent: %s has no field %q%s; fields are: %s", path, field, fid, strings.Join(names, ", "))
 	}
 	id := v.String()
 	switch v.Type() {
@@ -1264,9 +1268,29 @@ func fieldName(layer godal.Layer, name string) string {
 	return found
 }
 
+// hasField reports whether the layer's first feature has a field named
+// name (true for an empty layer, which the reader refuses itself).
+func hasField(layer godal.Layer, name string) bool {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	f := layer.NextFeature()
+	if f == nil {
+		return true
+	}
+	defer f.Close()
+	_, ok := f.Fields()[name]
+	return ok
+}
+
 // checkNullIDs refuses a unit layer with features whose id field is NULL:
 // they would silently merge into one unit.
 func checkNullIDs(ds *godal.Dataset, path string, layer godal.Layer, field string) error {
+	if !hasField(layer, field) {
+		// OGR SQL reads a name it does not know (a GeoPackage's fid,
+		// which is the features' id, not a field) as NULL on every
+		// feature: the reader says which fields there are.
+		return nil
+	}
 	from := fmt.Sprintf(`FROM "%s"`, strings.ReplaceAll(layer.Name(), `"`, `""`))
 	isNull := fmt.Sprintf(`WHERE "%s" IS NULL`, strings.ReplaceAll(field, `"`, `""`))
 	q := "SELECT COUNT(*) AS n " + from + " " + isNull
