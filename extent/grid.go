@@ -1624,12 +1624,13 @@ func (g *Grid) SameAs(o *Grid) string {
 		diffs = append(diffs, fmt.Sprintf("geotransform %v vs %v (cells up to %s of a cell apart, more than the %g of a cell we take for one grid)", g.GeoTransform, o.GeoTransform, strconv.FormatFloat(d, 'g', 2, 64), SameGridTolerance))
 	}
 	if !sameCRS(g, o) {
-		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", shortCRS(g.CRS), shortCRS(o.CRS)))
+		diffs = append(diffs, fmt.Sprintf("CRS %s vs %s", cutText(g.CRS), cutText(o.CRS)))
 	}
 	return strings.Join(diffs, "; ")
 }
 
-func shortCRS(s string) string {
+// cutText is s cut to its first 60 bytes, for a message.
+func cutText(s string) string {
 	if len(s) > 60 {
 		return s[:60] + "..."
 	}

@@ -280,6 +280,14 @@ func TestWrongKindOfFileAdvice(t *testing.T) {
 		t.Fatal(err)
 	}
 	dst.Close()
+	// A table's WKT that does not parse (cut short) read as no geometry,
+	// and the feature was skipped with the warning "has no geometry"
+	// (helper probe of 2026-12-05).
+	wktTable := filepath.Join(dir, "wkt.csv")
+	os.WriteFile(wktTable, []byte("WKT,id\n\"POLYGON((0.5 0.5,3 0.5,3 3,0.5 3,0.5 0.5))\",1\n\"POLYGON((0.5 0.5,3 0.5\",2\n"), 0o644)
+	os.WriteFile(filepath.Join(dir, "wkt.prj"), []byte(`GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`), 0o644)
+	_, _, err = ReadShape(wktTable, g)
+	check("broken WKT", err, `wkt.csv feature 2: its WKT text cannot be read as a geometry ("POLYGON((0.5 0.5,3 0.5")`, "")
 	for _, field := range []string{"fid", "FID"} {
 		_, _, err = ReadUnits(units, field, g)
 		check("fid", err, `has no field "`+field+`" (`+field+` names the features' id column`, "no value (NULL)")

@@ -651,6 +651,16 @@ func (s *polygonSource) feature(f *godal.Feature, fid int) (id string, own *goda
 	}
 	geom := f.Geometry()
 	if noGeometry(geom) {
+		if s.ds.Driver().ShortName() == "CSV" {
+			// A table's WKT column holds the geometry as text: one that
+			// does not parse (cut short, a typo) reads as no geometry,
+			// and the area it drew was skipped as if none were given.
+			for k, v := range f.Fields() {
+				if strings.EqualFold(k, "WKT") && strings.TrimSpace(v.String()) != "" {
+					return "", nil, fmt.Errorf("extent: %s feature %d: its %s text cannot be read as a geometry (%q); correct it (WKT such as POLYGON((x1 y1, x2 y2, x3 y3, x1 y1)), rings closed)", path, fid, k, cutText(strings.TrimSpace(v.String())))
+				}
+			}
+		}
 		return id, nil, nil
 	}
 	if s.invalid[fid] {
