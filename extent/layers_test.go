@@ -288,6 +288,16 @@ func TestWrongKindOfFileAdvice(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "wkt.prj"), []byte(`GEOGCS["WGS 84",DATUM["WGS_1984",SPHEROID["WGS 84",6378137,298.257223563]],PRIMEM["Greenwich",0],UNIT["degree",0.0174532925199433]]`), 0o644)
 	_, _, err = ReadShape(wktTable, g)
 	check("broken WKT", err, `wkt.csv feature 2: its WKT text cannot be read as a geometry ("POLYGON((0.5 0.5,3 0.5")`, "")
+	// A projected layer reaching past the edge of its CRS's world (an
+	// easting of 1e8 m in EPSG:3857, about 900 degrees of longitude):
+	// as a base region its buffers stopped on "NewIndex: site 0:
+	// longitude -1258 outside [-360, 360]", as an extra layer it came
+	// out empty (helper probe of 2026-12-05).
+	far := filepath.Join(dir, "far3857.geojson")
+	os.WriteFile(far, []byte(`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"EPSG:3857"}},"features":[{"type":"Feature","properties":{},"geometry":{"type":"Polygon","coordinates":[[[0,0],[100000000,0],[100000000,400000],[0,400000],[0,0]]]}}]}`), 0o644)
+	_, _, err = ReadShape(far, g)
+	check("past the world's edge", err, "projected to the raster's longitudes and latitudes it has a vertex at longitude", "NewIndex")
+	check("past the world's edge", err, "past the edge of the world of the layer's CRS", "")
 	for _, field := range []string{"fid", "FID"} {
 		_, _, err = ReadUnits(units, field, g)
 		check("fid", err, `has no field "`+field+`" (`+field+` names the features' id column`, "no value (NULL)")

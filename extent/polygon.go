@@ -911,6 +911,14 @@ func (s *polygonSource) onGrid(byID map[string]*godal.Geometry, order []string, 
 			} else if u != nil {
 				geom = u
 			}
+			// A vertex past the edge of the world of the layer's CRS
+			// (an easting of 1e8 m in EPSG:3857, whose world ends at
+			// about 2e7) lands turns round the globe: the base region's
+			// buffers stopped on an internal error, an extra layer came
+			// out empty as if off the raster.
+			if p := coordinateProblem(geom, true); p != "" {
+				return nil, fmt.Errorf("extent: %s: projected to the raster's longitudes and latitudes it %s, so a vertex lies past the edge of the world of the layer's CRS; check the layer's coordinates and CRS, or clip it to the study area (e.g. ogr2ogr -clipsrc XMIN YMIN XMAX YMAX OUT.gpkg %s, in the layer's units)", unitName(path, id), p, path)
+			}
 		}
 		if !lsr.IsSame(g.srs) {
 			fixed, err := validProjected(geom, g.srs)
