@@ -1,9 +1,12 @@
 package extent
 
 import (
+	"fmt"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/airbusgeo/godal"
 )
 
 // TestAntipodeRegionOnProjectedGrid: a latitude-longitude polygon around
@@ -74,4 +77,66 @@ func europeGrid(t *testing.T) *Grid {
 	}
 	t.Cleanup(g.Close)
 	return g
+}
+
+// TestPolarSquareAroundPole: a square drawn in a polar stereographic CRS
+// (EPSG:3995 and EPSG:3413, one centred on the pole and one off it) round
+// the north pole, on a world grid of 1 degree: its ring, projected to
+// longitudes and latitudes, winds once round the pole and is closed
+// along it. It was refused as "a polygon edge spans 360 degrees of
+// longitude (from lon -45 to -45, lat 90 to 90)" (helper probe of
+// 2026-12-05). The cells it holds are those whose centres, transformed
+// to the square's CRS by GDAL, lie inside it (counted here cell by cell).
+func TestPolarSquareAroundPole(t *testing.T) {
+	dir := t.TempDir()
+	g, _ := geoGrid(t, -180, 90, 1, 360, 180)
+	for _, c := range []struct {
+		epsg                   int
+		xmin, ymin, xmax, ymax float64
+	}{
+		{3995, -2e6, -2e6, 2e6, 2e6},
+		{3413, -1.5e6, -1.7e6, 2.1e6, 1.9e6},
+	} {
+		p := filepath.Join(dir, fmt.Sprintf("pole%d.gpkg", c.epsg))
+		writePolygonGPKG(t, p, c.epsg, [][2]float64{{c.xmin, c.ymin}, {c.xmax, c.ymin}, {c.xmax, c.ymax}, {c.xmin, c.ymax}, {c.xmin, c.ymin}})
+		s, _, err := ReadShape(p, g)
+		if err != nil {
+			t.Fatalf("EPSG:%d: %v", c.epsg, err)
+		}
+		got := 0
+		Fill(g, s.Grid, func(row, c0, c1 int) { got += c1 - c0 })
+		wgs, err := godal.NewSpatialRefFromEPSG(4326)
+		if err != nil {
+			t.Fatal(err)
+		}
+		dst, err := godal.NewSpatialRefFromEPSG(c.epsg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		tr, err := godal.NewTransform(wgs, dst)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := 0
+		for row := 0; row < 90; row++ { // the northern hemisphere
+			xs, ys := make([]float64, 360), make([]float64, 360)
+			for col := range xs {
+				xs[col], ys[col] = -179.5+float64(col), 89.5-float64(row)
+			}
+			if err := tr.TransformEx(xs, ys, nil, nil); err != nil {
+				t.Fatal(err)
+			}
+			for col := range xs {
+				if xs[col] >= c.xmin && xs[col] <= c.xmax && ys[col] >= c.ymin && ys[col] <= c.ymax {
+					want++
+				}
+			}
+		}
+		tr.Close()
+		wgs.Close()
+		dst.Close()
+		if got != want || want == 0 {
+			t.Errorf("EPSG:%d: the square holds %d cells, want %d (its cells' centres inside it)", c.epsg, got, want)
+		}
+	}
 }

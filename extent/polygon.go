@@ -1703,10 +1703,11 @@ func polygonsOf(mp orb.MultiPolygon, x orb.Geometry) orb.MultiPolygon {
 //
 // An edge from one copy of the antimeridian to the other (-180 to 180, a
 // whole turn) is kept: it runs along a parallel across the whole map, as
-// in a polygon around a pole written in one piece.
+// in a polygon around a pole written in one piece; so is an edge along a
+// pole (alongPole).
 func checkRingLon(r orb.Ring, shifted bool) error {
 	for i := 1; i < len(r); i++ {
-		if math.Abs(r[i][0]-r[i-1][0]) > 180 && !wholeTurn(r[i-1], r[i]) {
+		if math.Abs(r[i][0]-r[i-1][0]) > 180 && !wholeTurn(r[i-1], r[i]) && !alongPole(r[i-1], r[i]) {
 			a, b := r[i-1][0], r[i][0]
 			if shifted {
 				a, b = wrapInto(a, -180), wrapInto(b, -180)
@@ -1725,6 +1726,14 @@ const wholeTurnStep = 0.1
 // onAntimeridian reports whether longitude lon is 180 degrees east or west
 // of Greenwich, in any turn.
 func onAntimeridian(lon float64) bool { return math.Mod(math.Abs(lon), 360) == 180 }
+
+// alongPole reports whether the edge a-b lies on a pole (both ends at
+// latitude 90, or both at -90): one point of the Earth, whatever the
+// longitudes. unwrapRings closes a ring that winds round a pole (one
+// drawn in a polar stereographic CRS) along it.
+func alongPole(a, b orb.Point) bool {
+	return a[1] == b[1] && math.Abs(a[1]) == 90
+}
 
 // wholeTurn reports whether the edge a-b runs from one copy of the
 // antimeridian to the next: along a parallel across the whole map.
