@@ -594,6 +594,22 @@ func describedModels(base string, mvs []ModelVerdict) (parts, undefined, none []
 		if big.Diff == 0 {
 			largest = "every one 0"
 		}
+		// A difference on too few common test points is described like
+		// the others but would not be read (the AUC's sentence beside it
+		// says "not judged, too few common test points"): say so.
+		few := 0
+		for _, d := range mv.Diffs {
+			if d.Defined && strings.HasPrefix(d.NotJudged, "too few") {
+				few++
+			}
+		}
+		switch {
+		case few > 0 && few == defined:
+			n, cut, _ := strings.Cut(strings.TrimPrefix(big.NotJudged, "too few common test points: "), ", ")
+			largest += fmt.Sprintf("; each on too few common test points to be read, %s for the largest, %s", n, cut)
+		case few > 0:
+			largest += fmt.Sprintf("; %d of them on too few common test points to be read", few)
+		}
 		if len(parts) == 0 {
 			lie := "lie"
 			if beyond == 1 {
