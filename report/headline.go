@@ -215,6 +215,37 @@ func rankingClause(rk ModelRanking) string {
 	return out
 }
 
+// unlikeCells returns the extents where models m and o are both scored
+// but on different numbers of cells: one has no data where the other has
+// (a model masked to part of the grid), so their AUCs rest on different
+// backgrounds and test points, and their paired differences compare
+// unlike with unlike, as the run's warning says.
+func unlikeCells(r *Results, m, o string) []string {
+	cells := map[string]int64{}
+	for _, sc := range r.Scores {
+		if sc.Model == m && sc.Scored {
+			cells[sc.Extent] = sc.Cells
+		}
+	}
+	var out []string
+	for _, sc := range r.Scores {
+		if c, ok := cells[sc.Extent]; ok && sc.Model == o && sc.Scored && sc.Cells != c {
+			out = append(out, sc.Extent)
+		}
+	}
+	return out
+}
+
+// unlikeCellsWords is the caution a comparison of models m and o takes
+// where they are scored on different cells (unlikeCells), or "".
+func unlikeCellsWords(r *Results, m, o string) string {
+	ex := unlikeCells(r, m, o)
+	if len(ex) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" (on %d of them the two are scored on different cells, one having no data where the other has: not like with like)", len(ex))
+}
+
 // differOnNone says that two models differ beyond noise on none of the n
 // extents counted, word naming them after the count ("extents",
 // "extents compared"): "differ beyond noise on none of 9 extents", "on
@@ -335,7 +366,7 @@ func headline(a *analysis, s *Sensitivity) string {
 	var aucRanks []ModelRanking
 	for _, r := range s.Rankings {
 		if r.Metric == "auc" && r.Extents > 0 {
-			ranks = append(ranks, rankingClause(r))
+			ranks = append(ranks, rankingClause(r)+unlikeCellsWords(a.r, r.Model, r.Other))
 			aucRanks = append(aucRanks, r)
 		}
 	}

@@ -706,6 +706,9 @@ func resultNumbers(r *Results) string {
 			out += fmt.Sprintf(" By AUC, %s and %s scored the same on %s (every paired difference 0).", rk.Model, rk.Other, allExtents(rk.Extents))
 		} else if rk.Metric == "auc" && rk.Extents > 0 {
 			out += " " + methodsRankingText(rk)
+			if w := unlikeCellsWords(r, rk.Model, rk.Other); w != "" {
+				out = strings.TrimSuffix(out, ".") + w + "."
+			}
 		}
 	}
 	if ind := s.Independence; ind.Defined && ind.N == 1 {

@@ -1158,3 +1158,32 @@ func TestDecompositionEqualNonZeroValues(t *testing.T) {
 		t.Fatal("no omission decomposition")
 	}
 }
+
+// TestRankingOnUnlikeCells: two models scored on different cells of an
+// extent (one with no data on part of the grid) are compared with that
+// said, in the headline and the methods: "good is better than patchy
+// beyond noise on 11 of 11 extents" was written beside the run's own
+// warning that they do not compare like with like (helper audit of
+// 2026-12-05). With the same cells nothing is added.
+func TestRankingOnUnlikeCells(t *testing.T) {
+	const caution = "the two are scored on different cells, one having no data where the other has: not like with like"
+	r := analyzedSample(t)
+	checkWords(t, "headline, same cells", r.Sensitivity.Headline, nil, []string{caution})
+	r = loadSample(t)
+	var model string
+	changed := 0
+	for i := range r.Scores {
+		if model == "" && r.Scores[i].Scored {
+			model = r.Scores[i].Model
+		}
+		if r.Scores[i].Model == model && r.Scores[i].Scored && changed < 2 {
+			r.Scores[i].Cells--
+			changed++
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	checkWords(t, "headline", r.Sensitivity.Headline, []string{"(on 2 of them " + caution + ")"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"(on 2 of them " + caution + ")."}, nil)
+}
