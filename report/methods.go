@@ -115,8 +115,13 @@ func methodsFamily(b *strings.Builder, r *Results, sw string) {
 		}
 	}
 	fam := familyList(ok)
-	fmt.Fprintf(b, "We rescored %d suitability model%s (%s) on a family of %d evaluation extent%s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
-		len(models), Plural(len(models)), joinList(models), len(ok), Plural(len(ok)), sw, joinList(fam))
+	family := fmt.Sprintf("a family of %d evaluation extents", len(ok))
+	if len(ok) == 1 {
+		// "a family of 1 evaluation extent", then "not among the 1".
+		family = "one evaluation extent"
+	}
+	fmt.Fprintf(b, "We rescored %d suitability model%s (%s) on %s built with %s: %s. Nothing was refitted: each extent is only the background against which the same predictions are evaluated.",
+		len(models), Plural(len(models)), joinList(models), family, sw, joinList(fam))
 	methodsLeftOut(b, s, len(ok))
 	if len(s.Unscored) > 0 {
 		var us []string
@@ -146,7 +151,10 @@ func methodsLeftOut(b *strings.Builder, s *Sensitivity, n int) {
 	if len(of) > 0 {
 		fmt.Fprintf(b, " Left out of the %d: %s, so %d %s scored.", n, joinList(of), len(s.ScoredExtents), wasWere(len(s.ScoredExtents)))
 	}
-	if len(besides) > 0 {
+	switch {
+	case len(besides) > 0 && n == 1:
+		fmt.Fprintf(b, " Also built, but not evaluated apart from it: %s.", joinList(besides))
+	case len(besides) > 0:
 		fmt.Fprintf(b, " Also built but not among the %d: %s.", n, joinList(besides))
 	}
 }

@@ -1187,3 +1187,21 @@ func TestRankingOnUnlikeCells(t *testing.T) {
 	checkWords(t, "headline", r.Sensitivity.Headline, []string{"(on 2 of them " + caution + ")"}, nil)
 	checkWords(t, "methods", methodsText(r), []string{"(on 2 of them " + caution + ")."}, nil)
 }
+
+// TestMethodsOneExtent: a family of one extent (the region covers the
+// whole raster, so every buffer equals the base) reads "on one evaluation
+// extent", and the duplicates "also built, but not evaluated apart from
+// it"; "a family of 1 evaluation extent ... Also built but not among the
+// 1" was written (helper audit of 2026-12-05).
+func TestMethodsOneExtent(t *testing.T) {
+	r := analyzedSample(t)
+	base := r.Extents[0]
+	dup := r.Extents[1]
+	dup.Status, dup.DuplicateOf = vocab.StatusDuplicate, base.ID
+	r.Extents = []Extent{base, dup}
+	r.Sensitivity.SkippedExtents = []SkippedExtent{{ID: dup.ID, Status: vocab.StatusDuplicate, DuplicateOf: base.ID, Reason: "same cells as " + base.ID}}
+	var b strings.Builder
+	methodsFamily(&b, r, "areasweep")
+	checkWords(t, "methods", b.String(), []string{" on one evaluation extent built with areasweep", "Also built, but not evaluated apart from it: " + dup.ID + " (same cells as " + base.ID + ")."},
+		[]string{"family of 1", "not among the 1"})
+}
