@@ -1255,19 +1255,28 @@ func polygonProblem(g *godal.Geometry) string {
 	return "is a " + strings.ToLower(g.Name()) + ", not a polygon"
 }
 
+// firstFields returns the fields of the layer's first feature, and
+// false for an empty layer.
+func firstFields(layer godal.Layer) (map[string]godal.Field, bool) {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	f := layer.NextFeature()
+	if f == nil {
+		return nil, false
+	}
+	defer f.Close()
+	return f.Fields(), true
+}
+
 // fieldName returns the layer's field named name, or, when it has none,
 // its one field whose name differs only in case (a shapefile's DBF holds
 // ECO_NAME, typed eco_name; OGR's own SQL ignores case too). Otherwise
 // name itself, which the reader then reports with the list of fields.
 func fieldName(layer godal.Layer, name string) string {
-	layer.ResetReading()
-	defer layer.ResetReading()
-	f := layer.NextFeature()
-	if f == nil {
+	fields, ok := firstFields(layer)
+	if !ok {
 		return name
 	}
-	defer f.Close()
-	fields := f.Fields()
 	if _, ok := fields[name]; ok {
 		return name
 	}
@@ -1289,14 +1298,11 @@ func fieldName(layer godal.Layer, name string) string {
 // hasField reports whether the layer's first feature has a field named
 // name (true for an empty layer, which the reader refuses itself).
 func hasField(layer godal.Layer, name string) bool {
-	layer.ResetReading()
-	defer layer.ResetReading()
-	f := layer.NextFeature()
-	if f == nil {
+	fields, ok := firstFields(layer)
+	if !ok {
 		return true
 	}
-	defer f.Close()
-	_, ok := f.Fields()[name]
+	_, ok = fields[name]
 	return ok
 }
 
