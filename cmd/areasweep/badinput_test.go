@@ -700,7 +700,10 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		// Vector layers.
 		{"region missing", f.withRegion(filepath.Join(f.dir, "nope.gpkg")), 2, []string{"region", "nope.gpkg", "does not exist"}, "", ""},
 		{"region a File Geodatabase", f.withRegion(fakeGDB), 2, []string{"region: " + fakeGDB + " is a File Geodatabase, a folder of many files", "ogr2ogr -f GPKG OUT.gpkg " + fakeGDB + " LAYER"}, "", ""},
-		{"occurrences bad and region checksum fails", []string{"run", "--model", "m=" + f.model, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n"), "--region", fakeGDB, "--iterations", "5"}, 2, []string{"badnum2.csv line 3", `column "lat"`}, "", ""},
+		// The File Geodatabase is refused with the inputs' existence,
+		// before the occurrence table is read (its checksum failed after
+		// the points, so the table's error came first).
+		{"occurrences bad and region a File Geodatabase", []string{"run", "--model", "m=" + f.model, "--occurrences", f.file("badnum2.csv", occHeader+"13.5,abc,test\n"), "--region", fakeGDB, "--iterations", "5"}, 2, []string{"fake.gdb is a File Geodatabase"}, "", ""},
 		{"region a zipped shapefile", f.withRegion(f.file("region.zip", "PK\x03\x04 not really")), 2, []string{"region.zip", "unzipped first"}, "", ""},
 		{"region a GDAL virtual path", f.withRegion("/vsizip/" + filepath.Join(f.dir, "region.zip") + "/region.shp"), 2, []string{"region", "/vsizip/", "local files only", "unzip"}, "", ""},
 		{"model a URL", f.withModel("https://example.invalid/model.tif"), 2, []string{"model m", "https://example.invalid/model.tif", "URL", "download"}, "", ""},
