@@ -630,14 +630,13 @@ func describedModels(base string, mvs []ModelVerdict) (parts, undefined, none []
 		// says "not judged, too few common test points"): say so.
 		few := 0
 		for _, d := range mv.Diffs {
-			if d.Defined && strings.HasPrefix(d.NotJudged, "too few") {
+			if d.Defined && d.Position == positionTooFew {
 				few++
 			}
 		}
 		switch {
 		case few > 0 && few == defined:
-			n, cut, _ := strings.Cut(strings.TrimPrefix(big.NotJudged, "too few common test points: "), ", ")
-			largest += fmt.Sprintf("; each on too few common test points to be read, %s for the largest, %s", n, cut)
+			largest += fmt.Sprintf("; each on too few common test points to be read, %d for the largest, our cut-off %d", big.CommonPoints, big.minPoints)
 		case few > 0:
 			largest += fmt.Sprintf("; %d of them on too few common test points to be read", few)
 		}

@@ -924,6 +924,18 @@ func (d *Dir) cleanDead(exists bool) {
 // each.
 const movingName = ".areasweep-moving"
 
+// readJournal reads the journal (movingName) in the set-aside folder
+// hold: the staging folder it names and the entries it lists; ok is
+// false when there is none.
+func readJournal(hold string) (stage string, entries []string, ok bool) {
+	b, err := os.ReadFile(filepath.Join(hold, movingName))
+	if err != nil {
+		return "", nil, false
+	}
+	lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
+	return lines[0], lines[1:], true
+}
+
 // restoreHold puts back into --out the previous outputs that a run killed
 // while it replaced them (SIGKILL, a power cut) had set aside in hold, so
 // that --out holds the previous run whole again rather than a mix, and
@@ -934,29 +946,26 @@ const movingName = ".areasweep-moving"
 // nothing is put back. When a name is taken in --out nothing is put back
 // (see below).
 func (d *Dir) restoreHold(hold string) {
-	b, err := os.ReadFile(filepath.Join(hold, movingName))
-	journal := err == nil
+	stage, listed, journal := readJournal(hold)
 	if journal {
-		lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
-		stage := lines[0]
 		if filepath.Dir(stage) != d.abs && filepath.Dir(stage) != d.parent {
 			return // not a journal of this --out: the folder is removed as it was
 		}
 		var moved []string
-		listed := 0
-		for _, n := range lines[1:] {
+		outputs := 0
+		for _, n := range listed {
 			if n == "" || n != filepath.Base(n) || n == "." || n == ".." || n == recordName {
 				continue
 			}
-			listed++
+			outputs++
 			if _, err := os.Lstat(filepath.Join(stage, n)); errors.Is(err, os.ErrNotExist) {
 				moved = append(moved, n)
 			}
 		}
-		if len(moved) == listed {
+		if len(moved) == outputs {
 			// Killed after its last move but the record's: --out holds
 			// the new run whole, and its record goes in with it.
-			if slices.Contains(lines[1:], recordName) {
+			if slices.Contains(listed, recordName) {
 				os.Rename(filepath.Join(stage, recordName), filepath.Join(d.abs, recordName))
 			}
 			return

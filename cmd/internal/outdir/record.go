@@ -98,10 +98,10 @@ func (d *Dir) unrecorded(names []string) []string {
 	if rec == nil {
 		rec = map[string]bool{}
 	}
-	holds, _ := filepath.Glob(filepath.Join(globEscape(d.abs), holdPrefix+"*", movingName))
-	for _, j := range holds {
-		if b, err := os.ReadFile(j); err == nil {
-			for _, n := range strings.Split(string(b), "\n")[1:] {
+	holds, _ := filepath.Glob(filepath.Join(globEscape(d.abs), holdPrefix+"*"))
+	for _, h := range holds {
+		if _, entries, ok := readJournal(h); ok {
+			for _, n := range entries {
 				rec[n] = true
 			}
 		}
