@@ -336,6 +336,10 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	null := ModelLabel(r, an.Null)
 	g := an.gap(an.BaseExtent)
 	score := metricPhrase(m)
+	against := ""
+	if g != nil {
+		against = againstText(r, an, g)
+	}
 	switch {
 	case g != nil && !g.Defined && g.CommonPoints < 2:
 		// Say on how few: "could not be formed" alone reads as a fault.
@@ -345,17 +349,17 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	case !notJudgedPosition(an.BaseReading) && g.zero():
 		// A copy of the null: "not above beyond noise" would suggest
 		// noise where there is none.
-		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s against %s).", an.BaseExtent, score, an.Model, null,
-			f3(g.ModelValue), f3(g.NullValue))
+		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s).", an.BaseExtent, score, an.Model, null,
+			against)
 	case an.BaseReading == ReadingTooFew:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue)+" against "+f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
 	case an.BaseReading == ReadingTooFewResamples:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s against %s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), g.nFormed, Plural(g.nFormed), MinPercentileResamples)
+		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), against, g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s against %s, 95%% interval %s to %s)", an.BaseExtent, score, an.Model, null,
-			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s, 95%% interval %s to %s)", an.BaseExtent, score, an.Model, null,
+			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 		if aboveWithoutSkill(m.Kind, g) {
 			fmt.Fprintf(&b, "; but %s", noSkillClause(m.Kind, score, g))
 		}
@@ -363,13 +367,13 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
-		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s against %s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
-			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		// An interval that includes 0 tells neither that the model is
 		// above the null nor that it is not: no evidence either way.
-		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s against %s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
-			signedSmall(g.Diff), f3(g.ModelValue), f3(g.NullValue), signedVs(g.Low, 0), signedVs(g.High, 0))
+		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
+			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.allZero() {
 		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
@@ -404,6 +408,21 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			an.Defined, gapSpan("runs from", s.Diff, an.SmallestExtent, small, l.Diff, an.LargestExtent, large), counts)
 	}
 	return b.String()
+}
+
+// againstText is "0.866 against 0.862", the model's and the null's
+// values of g, with "on the N test points both score" when that is not
+// every test point the model or the null is scored on there: the
+// null's score of the tables (on all its points) could otherwise be
+// read beside a different value of the null here (helper audit of
+// 2026-12-05).
+func againstText(r *Results, an *AboveNull, g *NullGap) string {
+	t := fmt.Sprintf("%s against %s", f3(g.ModelValue), f3(g.NullValue))
+	sc, ns := findScore(r, an.Model, g.Extent), findScore(r, an.Null, g.Extent)
+	if sc != nil && ns != nil && (sc.TestPoints != g.CommonPoints || ns.TestPoints != g.CommonPoints) {
+		t += fmt.Sprintf(" on the %d test point%s both score", g.CommonPoints, Plural(g.CommonPoints))
+	}
+	return t
 }
 
 // gapSpan says how the model-minus-null gap goes from the smallest

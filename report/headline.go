@@ -325,6 +325,46 @@ func testPointText(s *Sensitivity) string {
 	return fmt.Sprintf("%d to %d test points per extent", lo, hi)
 }
 
+// fewerPointsText says, for each model scored on fewer test points than
+// an extent holds on some scored extent (it has no value at the others'
+// cells), how many it scores: "; patchy scores 61 to 70 of them, having
+// no value at the others". Without it the headline's count read as every
+// model's (helper audit of 2026-12-05). "" when every model scores every
+// test point of every scored extent.
+func fewerPointsText(a *analysis, s *Sensitivity) string {
+	var parts []string
+	for _, m := range a.models {
+		lo, hi, fewer := -1, -1, false
+		for _, id := range s.ScoredExtents {
+			sc := a.score(m, id)
+			i, ok := a.extIndex[id]
+			if sc == nil || !sc.Scored || !ok {
+				continue
+			}
+			n := sc.TestPoints
+			if n < a.r.Extents[i].TestPoints {
+				fewer = true
+			}
+			if lo < 0 {
+				lo, hi = n, n
+			}
+			lo, hi = min(lo, n), max(hi, n)
+		}
+		if !fewer {
+			continue
+		}
+		if lo == hi {
+			parts = append(parts, fmt.Sprintf("%s scores %d of them", m, lo))
+		} else {
+			parts = append(parts, fmt.Sprintf("%s scores %d to %d of them", m, lo, hi))
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return "; " + joinList(parts) + ", having no value at the others"
+}
+
 // scoredNowhere lists the models scored on none of the scored extents
 // (a constant model, for one): they have no verdict to give, only
 // "undetermined" for want of any score.
@@ -404,7 +444,7 @@ func scoredAreaRange(a *analysis, s *Sensitivity) (lo, hi float64) {
 // extent (of area lo): there is nothing to compare it with, so no verdict.
 func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float64) {
 	fmt.Fprintf(b, "Only one evaluation extent, %s (%s km², %s), could be scored, so no score can be compared across extents", s.ScoredExtents[0],
-		fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each"))
+		fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each")+fewerPointsText(a, s))
 	var parts []string
 	for _, m := range a.models {
 		if sp := s.findSpread("auc", m); sp != nil && sp.N > 0 {
@@ -464,7 +504,7 @@ func belowRandomClause(r *Results, sp *Spread) string {
 // ratio's verdicts; false when no model has an AUC (the headline ends
 // there).
 func manyExtentsHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo, hi float64) bool {
-	fmt.Fprintf(b, "Across %d evaluation extents %s (%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s))
+	fmt.Fprintf(b, "Across %d evaluation extents %s (%s%s), ", len(s.ScoredExtents), areaRange(lo, hi), testPointText(s), fewerPointsText(a, s))
 	var parts []string
 	against := ""
 	for _, m := range a.models {

@@ -1197,9 +1197,14 @@ func reviewerRankingText(rk ModelRanking) string {
 // (", ... on every extent compared" when some extents were not compared),
 // ", so their order depends on the extent" when each is better beyond
 // noise somewhere, ", so their order did not reverse beyond noise on any
-// extent" when only the first is, else "".
+// extent" when only the first is, else "" (and on one extent compared,
+// where no order can reverse: "did not reverse beyond noise on any
+// extent" was written after "on 1 of 1 extent", helper audit of
+// 2026-12-05).
 func rankingOrderText(rk ModelRanking) string {
 	switch {
+	case rk.Extents <= 1:
+		return ""
 	case rk.Extents > 1 && (rk.Better == rk.Extents || rk.Worse == rk.Extents):
 		if len(rk.Diffs) > rk.Extents {
 			// Some extents were not compared (too few common test

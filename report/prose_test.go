@@ -1205,3 +1205,65 @@ func TestMethodsOneExtent(t *testing.T) {
 	checkWords(t, "methods", b.String(), []string{" on one evaluation extent built with areasweep", "Also built, but not evaluated apart from it: " + dup.ID + " (same cells as " + base.ID + ")."},
 		[]string{"family of 1", "not among the 1"})
 }
+
+// TestHeadlineModelFewerPoints: a model scored on fewer test points than
+// an extent holds (no value at some of their cells) has its own count in
+// the headline: "(82 to 90 test points per extent)" was read as every
+// model's (helper audit of 2026-12-05). Without such a model nothing is
+// added.
+func TestHeadlineModelFewerPoints(t *testing.T) {
+	const tail = "of them, having no value at the others"
+	r := analyzedSample(t)
+	checkWords(t, "headline, every point", r.Sensitivity.Headline, nil, []string{tail})
+	r = loadSample(t)
+	var model string
+	lo := -1
+	for i := range r.Scores {
+		if model == "" && r.Scores[i].Scored {
+			model = r.Scores[i].Model
+		}
+		if r.Scores[i].Model == model && r.Scores[i].Scored {
+			r.Scores[i].TestPoints -= 3
+			if lo < 0 || r.Scores[i].TestPoints < lo {
+				lo = r.Scores[i].TestPoints
+			}
+		}
+	}
+	if err := Analyze(r); err != nil {
+		t.Fatal(err)
+	}
+	h := r.Sensitivity.Headline
+	checkWords(t, "headline", h, []string{"; " + model + " scores ", tail + "), "}, nil)
+	if !strings.Contains(h, fmt.Sprintf(" scores %d ", lo)) {
+		t.Errorf("headline does not give %s's fewest points, %d: %s", model, lo, h)
+	}
+}
+
+// TestAboveNullValuesOnCommonPoints: the model's and the null's values
+// in the sentence on the base are those of the test points both score;
+// where that is not all of either's points it says so, since the null's
+// score in the tables (on all its points) differs: "+0.024 (0.890
+// against 0.866 ...)" stood beside the null's 0.862 of the tables
+// (helper audit of 2026-12-05).
+func TestAboveNullValuesOnCommonPoints(t *testing.T) {
+	an := AboveNull{Metric: "auc", Model: "patchy", Null: "distance_null", NullKind: NullDistance, BaseExtent: "base", BaseReading: ReadingAbove, Defined: 1, Above: 1,
+		SmallestExtent: "base", LargestExtent: "base",
+		Gaps: []NullGap{{Extent: "base", AreaKm2: 461000, Defined: true, CommonPoints: 82, Method: "placements", ModelValue: 0.890, NullValue: 0.866,
+			Diff: 0.024, Low: 0.004, High: 0.044, Reading: ReadingAbove}}}
+	m := MetricInfo{Key: "auc", Label: "AUC", Kind: MetricAUC}
+	for _, c := range []struct {
+		name         string
+		model, null  int
+		want, unwant []string
+	}{
+		{"all points", 82, 82, []string{"(0.890 against 0.866, 95% interval"}, []string{"both score"}},
+		{"model scores fewer", 82, 90, []string{"(0.890 against 0.866 on the 82 test points both score, 95% interval"}, nil},
+		{"null scores fewer", 90, 82, []string{"(0.890 against 0.866 on the 82 test points both score, 95% interval"}, nil},
+	} {
+		r := &Results{Scores: []Score{
+			{Model: "patchy", Extent: "base", Scored: true, TestPoints: c.model},
+			{Model: "distance_null", Extent: "base", Scored: true, TestPoints: c.null},
+		}}
+		checkWords(t, c.name, aboveNullSentence(r, m, &an), c.want, c.unwant)
+	}
+}

@@ -2073,6 +2073,8 @@ func TestRankingOrderNotCompared(t *testing.T) {
 		{"demo, every extent compared", 13, 13, 0, 13, ", so their order held on every extent"},
 		{"worse everywhere compared, one not", 4, 0, 4, 5, ", so their order held on every extent compared"},
 		{"better on some, one not compared", 9, 5, 0, 10, ", so their order did not reverse beyond noise on any extent"},
+		{"one extent compared, better there", 1, 1, 0, 1, ""},
+		{"one extent compared of two", 1, 1, 0, 2, ""},
 	}
 	for _, c := range cases {
 		rk := ModelRanking{Metric: "auc", Model: "good", Other: "coarse", Extents: c.extents, Better: c.better, Worse: c.worse, Diffs: make([]ExtentDifference, c.nDiffs)}

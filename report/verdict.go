@@ -161,6 +161,16 @@ func withinBracket(label, note string) string {
 	return label + " (" + note + ")"
 }
 
+// scoreName names metric m of model at a sentence's start: "AUC of
+// good", and "Partial ROC ratio of good at E = 0.05" (the label's
+// "Partial ROC ratio, E = 0.05 of good" read as a list).
+func scoreName(m MetricInfo, model string) string {
+	if m.Kind == MetricPartialROC {
+		return fmt.Sprintf("Partial ROC ratio of %s at E = %s", model, fmtG(m.E))
+	}
+	return upperFirst(m.Label) + " of " + model
+}
+
 // modelVerdict judges metric m for model by its paired differences from
 // the base extent (see ModelVerdict).
 func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
@@ -168,11 +178,11 @@ func (a *analysis) modelVerdict(m MetricInfo, model string) ModelVerdict {
 		Diffs: []ExtentDifference{}, Largest: -1, Undefined: []string{}}
 	bs := a.score(model, a.base)
 	if bs == nil && !a.scoredSomewhere(model) {
-		mv.Sentence = fmt.Sprintf("%s of %s: not scored on any extent, so no difference can be formed.", upperFirst(m.Label), model)
+		mv.Sentence = scoreName(m, model) + ": not scored on any extent, so no difference can be formed."
 		return mv
 	}
 	if bs == nil {
-		mv.Sentence = fmt.Sprintf("%s of %s: not scored on %s %s, so no difference from it can be formed.", upperFirst(m.Label), model, baseWord(a.base), a.base)
+		mv.Sentence = fmt.Sprintf("%s: not scored on %s %s, so no difference from it can be formed.", scoreName(m, model), baseWord(a.base), a.base)
 		return mv
 	}
 	var baseOK bool
@@ -214,7 +224,7 @@ func (a *analysis) diffsFromBase(m MetricInfo, model string, mv *ModelVerdict) i
 // them wholly beyond the tolerance); bs is the score on the base extent,
 // baseOK whether m is defined there.
 func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside int, bs *Score, baseOK bool) {
-	name := fmt.Sprintf("%s of %s", upperFirst(m.Label), model)
+	name := scoreName(m, model)
 	tol := "±" + fmtG(m.Tolerance)
 	switch {
 	case len(mv.Diffs) == 0:

@@ -281,7 +281,7 @@ func TestPartialROCExtentsDescribed(t *testing.T) {
 	}
 	count := fmt.Sprintf("%d of %d lie beyond ±0.05", beyond, defined)
 	largest := fmt.Sprintf("%s on %s", signedSmall(big.Diff), big.Extent)
-	checkWords(t, "sentence", mv.Sentence, []string{"Partial ROC ratio, E = 0.05 of good is described, not judged (its paired intervals between extents fall short of their 95% coverage: 38% to 91% in our simulation check)",
+	checkWords(t, "sentence", mv.Sentence, []string{"Partial ROC ratio of good at E = 0.05 is described, not judged (its paired intervals between extents fall short of their 95% coverage: 38% to 91% in our simulation check)",
 		count, "the largest is " + largest}, []string{"extent-sensitive", "95% interval"})
 	judgedModels := 0
 	for _, p := range r.Paired {

@@ -260,6 +260,10 @@
 #     "38% to 91%" at E = 0.05 and "58% to 93%" at the demo's E = 0.1,
 #     without the ", measured at E = 0.05, not at E = 0.1"; no number
 #     changed, scores.csv unchanged).
+#   - rewritten on 2026-12-05, session 17 (a partial ROC verdict's
+#     sentence names its score "Partial ROC ratio of good at E = 0.05",
+#     not "Partial ROC ratio, E = 0.05 of good"; no number changed,
+#     scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

@@ -31,7 +31,7 @@ func TestSummaryRecomputesVerdicts(t *testing.T) {
 	for i := range r.Sensitivity.ModelVerdicts {
 		if mv := &r.Sensitivity.ModelVerdicts[i]; mv.Metric == key {
 			mv.Verdict = report.JudgementSensitive
-			mv.Sentence = "Partial ROC ratio, E = 0.05 of " + mv.Model + " is extent-sensitive."
+			mv.Sentence = "Partial ROC ratio of " + mv.Model + " at E = 0.05 is extent-sensitive."
 			stale++
 		}
 	}
