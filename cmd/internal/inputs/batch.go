@@ -693,8 +693,8 @@ func (p *batchParser) header(rec []string, line int, delim rune) []string {
 
 // yamlSyntax returns the message of a YAML reader error on data without
 // its "yaml: line N:" prefix, saying "near line N" instead (yamlNear): the
-// reader's line can be one early (see syntaxError), so no exact line is
-// claimed (the returned line is 0).
+// reader's line is where it noticed the problem (see syntaxError), so no
+// exact line is claimed (the returned line is 0).
 func yamlSyntax(err error, data []byte) (int, string) {
 	near := yamlNear(err, data, true)
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")

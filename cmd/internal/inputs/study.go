@@ -288,9 +288,10 @@ func (e *lineErr) Unwrap() error { return e.err }
 var yamlLineRE = regexp.MustCompile(`line (\d+)`)
 
 // syntaxError wraps an error of the YAML reader on data, the study file's
-// text (first: in its first YAML document). The reader's line numbers can
-// be one line early, so the line is given as "near line N" in the text
-// (yamlNear) and StudyError.Line is left 0.
+// text (first: in its first YAML document). The reader names the line
+// where it noticed the problem, which may follow the fault (an unclosed
+// bracket is noticed at the next key), so the line is given as "near line
+// N" in the text (yamlNear) and StudyError.Line is left 0.
 func syntaxError(name string, err error, data []byte, first bool) error {
 	near := yamlNear(err, data, first)
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")

@@ -57,8 +57,17 @@ func yamlWords(msg string) string {
 // finds before it counts lines: that one is looked up in data, and any
 // other error without a line is on line 1 when it is in the first
 // document (first). "" when the line is not known.
+//
+// The reader counts a parser's lines from 0 and a scanner's from 1
+// (go.yaml.in/yaml/v3's parser.fail adds 1 for a scanner error only), so
+// a parser's problem (yamlParserRE: an unclosed [ or {, a line indented
+// unlike its neighbours) was said one line early: "near line 1" for a [
+// on line 2 (found by the README probe of 2026-12-05).
 func yamlNear(err error, data []byte, first bool) string {
 	if m := yamlLineRE.FindStringSubmatch(err.Error()); m != nil {
+		if n, e := strconv.Atoi(m[1]); e == nil && yamlParserRE.MatchString(err.Error()) {
+			return " near line " + strconv.Itoa(n+1)
+		}
 		return " near line " + m[1]
 	}
 	if yamlControlRE.MatchString(err.Error()) {
@@ -72,6 +81,10 @@ func yamlNear(err error, data []byte, first bool) string {
 	}
 	return ""
 }
+
+// yamlParserRE matches the problems go.yaml.in/yaml/v3's parser (not its
+// scanner) reports (parserc.go), whose line it counts from 0.
+var yamlParserRE = regexp.MustCompile(`did not find expected (<document start>|key|node content|'-' indicator|',' or '\]'|',' or '\}')|found undefined tag handle|found duplicate %(YAML|TAG) directive|found incompatible YAML document`)
 
 var yamlControlRE = regexp.MustCompile(`control characters are not allowed`)
 

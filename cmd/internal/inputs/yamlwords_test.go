@@ -104,6 +104,14 @@ func TestYAMLSyntaxNamesLine(t *testing.T) {
 		{"control character after Windows line ends", "seed: 1\r\niterations: 20\r\nregion: \"a\x0bb\"\r\n", "near line 3:"},
 		{"control character after carriage returns alone", "seed: 1\rregion: \"a\x7fb\"\r", "near line 2:"},
 		{"C1 control character on line 2", "seed: 1\nregion: \"a\u0090b\"\n", "near line 2:"},
+		// Problems of the reader's parser, which it counts from line 0
+		// (it said "near line 1" for the [ on line 2).
+		{"list opened on line 2 not closed", "seed: 3\ne: [0.05, 0.1\nfraction: 0.5\n", "near line 2:"},
+		{"list opened on line 4 not closed", "seed: 3\niterations: 20\nfraction: 0.5\ne: [0.05, 0.1\nworkers: 1\n", "near line 4:"},
+		{"mapping opened on line 3 not closed", "seed: 3\niterations: 20\ne: {a: 1\nfraction: 0.5\n", "near line 3:"},
+		{"empty list item on line 3", "seed: 3\niterations: 20\ne: [0.05, , 0.1]\n", "near line 3:"},
+		{"list item out of line on line 5", "seed: 3\nmodel:\n  - a=m.tif\n  - b=n.tif\n - c=o.tif\n", "near line 5:"},
+		{"stray bracket on line 3", "seed: 3\niterations: 20\n]\n", "near line 3:"},
 	}
 	for _, c := range studies {
 		t.Run(c.name, func(t *testing.T) {
