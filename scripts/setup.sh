@@ -30,7 +30,7 @@ if ! command -v go >/dev/null 2>&1; then
   if [ -x /usr/local/go/bin/go ]; then
     export PATH="/usr/local/go/bin:$PATH"
   else
-    echo "setup: Go is not installed; install Go 1.26 or newer (https://go.dev/doc/install) and run again" >&2
+    echo "setup: Go is not installed; install Go 1.26.8 or newer, the go.mod version (https://go.dev/doc/install), and run again" >&2
     exit 1
   fi
 fi

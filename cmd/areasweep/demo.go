@@ -48,7 +48,7 @@ the study file, writing the results into --out. Nothing in it is real data.`,
 	f.StringVar(&opts.Out, "out", opts.Out, "output directory `DIR`")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files (inputs/ included) in an existing output directory")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars, no log lines and no answer line on standard error")
-	wholeVar(f, &opts.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores)", settings.MaxWorkers))
+	wholeVar(f, &opts.Workers, "workers", 0, fmt.Sprintf("scoring goroutines `N`, 1 to %d (default, or 0: all cores)", settings.MaxWorkers))
 	wholeUintVar(f, &opts.Seed, "scenario-seed", opts.Seed, "seed `N` of the invented landscape")
 	return cmd
 }

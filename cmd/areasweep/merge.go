@@ -65,7 +65,7 @@ elsewhere is another build, and its shards are refused.`,
 	f.Var(&onceString{p: &opts.Out, name: "out"}, "out", "output directory `DIR` (an existing non-empty one needs --force)")
 	f.BoolVar(&opts.Force, "force", false, "replace areasweep's files in an existing output directory (other files are kept)")
 	f.BoolVar(&opts.Quiet, "quiet", false, "no progress bars, no log lines and no answer line on standard error")
-	wholeVar(f, &opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default: all cores); results do not depend on it", settings.MaxWorkers))
+	wholeVar(f, &opts.Workers, "workers", 0, fmt.Sprintf("goroutines `N`, 1 to %d (default, or 0: all cores); results do not depend on it", settings.MaxWorkers))
 	return cmd
 }
 

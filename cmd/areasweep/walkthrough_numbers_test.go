@@ -55,7 +55,7 @@ var wtUnchecked = []struct{ text, why string }{
 	{"at or above P10", "the threshold's name"},
 	{"reaches y = 1 early", "the corner of the ROC plot, not a result"},
 	{"their 95% coverage (see \"How often the 95% intervals cover\")", "the nominal level of the intervals and a section's title, not a result"},
-	{"their 95% coverage: see below", "the nominal level of the intervals, not a result"},
+	{"their 95% coverage, see below", "the nominal level of the intervals, not a result"},
 	{"no calibrated test against 1 (see", "the ratio of a random ranking (1), not a result"},
 	{"SE is about 0.02", "a round description of every extent's SE (0.015 to 0.027 in the Key numbers table, whose cells are checked), not one value"},
 }
@@ -585,7 +585,19 @@ func checkWalkthroughNumbers(readme string, r *wtResults, run wtRun) (problems [
 	frag(fmt.Sprintf("The family has %d members", len(r.Extents)))
 
 	// Key numbers.
-	frag(fmt.Sprintf("over the %d full-size paired resamples", r.Settings.PairedResamples))
+	// "ratio − base": the point difference, no interval, no resamples
+	// (it said "over the 500 full-size paired resamples", which no
+	// difference between extents of the ratio uses).
+	frag("a description with no interval and no")
+	frag("(`method` `point_difference` in `results.json`")
+	for _, e := range r.Extents {
+		if e.ID == "base" {
+			continue
+		}
+		if d := diffOf("partial_roc_e0.05", "good", e.ID); d.method != "point_difference" {
+			bad("good's partial ROC ratio difference from base on %s has method %q, not point_difference", e.ID, d.method)
+		}
+	}
 	frag(`"MTP" is the minimum training presence threshold and "P10" the 10th-percentile one`)
 	// The area-random test: good's ratio at E = 0.05 above random on
 	// every extent at the smallest p the draws resolve, 1/(draws + 1).

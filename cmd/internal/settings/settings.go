@@ -240,7 +240,7 @@ var Table = []Setting{
 		Usage: "no progress bars, no log lines and no answer line on standard error",
 		Field: func(v *Values) any { return &v.Quiet }},
 	{Name: "workers", Kind: Int, Arg: "N", Scoring: true, Unset: "all cores",
-		Usage: fmt.Sprintf("scoring goroutines `N`, 1 to %d (default: all cores); results do not depend on it", MaxWorkers),
+		Usage: fmt.Sprintf("scoring goroutines `N`, 1 to %d (default, or 0: all cores); results do not depend on it", MaxWorkers),
 		Field: func(v *Values) any { return &v.Workers }},
 }
 
