@@ -336,6 +336,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	null := ModelLabel(r, an.Null)
 	g := an.gap(an.BaseExtent)
 	score := metricPhrase(m)
+	scoreOf := metricOf(m, an.Model)
 	against := ""
 	if g != nil {
 		against = againstText(r, an, g)
@@ -343,22 +344,22 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	switch {
 	case g != nil && !g.Defined && g.CommonPoints < 2:
 		// Say on how few: "could not be formed" alone reads as a fault.
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed: they share %d test point%s.", an.BaseExtent, score, an.Model, null, g.CommonPoints, Plural(g.CommonPoints))
+		fmt.Fprintf(&b, "On %s, %s minus %s could not be formed: they share %d test point%s.", an.BaseExtent, scoreOf, null, g.CommonPoints, Plural(g.CommonPoints))
 	case g == nil || !g.Defined:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s could not be formed.", an.BaseExtent, score, an.Model, null)
+		fmt.Fprintf(&b, "On %s, %s minus %s could not be formed%s.", an.BaseExtent, scoreOf, null, undefinedGapWhy(r, m, an))
 	case !notJudgedPosition(an.BaseReading) && g.zero():
 		// A copy of the null: "not above beyond noise" would suggest
 		// noise where there is none.
-		fmt.Fprintf(&b, "On %s, %s of %s is the same as that of %s: the difference and its 95%% interval are 0 (%s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s is the same as that of %s: the difference and its 95%% interval are 0 (%s).", an.BaseExtent, scoreOf, null,
 			against)
 	case an.BaseReading == ReadingTooFew:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), f3(g.ModelValue)+" against "+f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
+		fmt.Fprintf(&b, "On %s, %s minus %s is %s (%s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, scoreOf, null, signedSmall(g.Diff), f3(g.ModelValue)+" against "+f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
 	case an.BaseReading == ReadingTooFewResamples:
-		fmt.Fprintf(&b, "On %s, %s of %s minus %s is %s (%s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
-			an.BaseExtent, score, an.Model, null, signedSmall(g.Diff), against, g.nFormed, Plural(g.nFormed), MinPercentileResamples)
+		fmt.Fprintf(&b, "On %s, %s minus %s is %s (%s), its interval from %d formed resample%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
+			an.BaseExtent, scoreOf, null, signedSmall(g.Diff), against, g.nFormed, Plural(g.nFormed), MinPercentileResamples)
 	case an.BaseReading == ReadingAbove:
-		fmt.Fprintf(&b, "On %s, %s of %s is above %s beyond noise: %s (%s, 95%% interval %s to %s)", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s is above %s beyond noise: %s (%s, 95%% interval %s to %s)", an.BaseExtent, scoreOf, null,
 			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 		if aboveWithoutSkill(m.Kind, g) {
 			fmt.Fprintf(&b, "; but %s", noSkillClause(m.Kind, score, g))
@@ -367,12 +368,12 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	case an.BaseReading == ReadingBelow:
 		// Wholly below 0: the model is worse than the null beyond noise,
 		// which "does not beat" would understate.
-		fmt.Fprintf(&b, "On %s, %s of %s is below %s beyond noise: %s (%s, 95%% interval %s to %s).", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s is below %s beyond noise: %s (%s, 95%% interval %s to %s).", an.BaseExtent, scoreOf, null,
 			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 	default:
 		// An interval that includes 0 tells neither that the model is
 		// above the null nor that it is not: no evidence either way.
-		fmt.Fprintf(&b, "On %s, %s of %s is not above %s beyond noise: the difference %s (%s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, score, an.Model, null,
+		fmt.Fprintf(&b, "On %s, %s is not above %s beyond noise: the difference %s (%s) has a 95%% interval %s to %s that includes 0.", an.BaseExtent, scoreOf, null,
 			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.allZero() {
@@ -408,6 +409,27 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			an.Defined, gapSpan("runs from", s.Diff, an.SmallestExtent, small, l.Diff, an.LargestExtent, large), counts)
 	}
 	return b.String()
+}
+
+// undefinedGapWhy says why the difference of an on its base extent could
+// not be formed when one side's score is undefined there: ": it is
+// undefined for coarse there (the 1 - E crossing falls among ...)", or
+// "" (the sentence said "could not be formed" with no reason).
+func undefinedGapWhy(r *Results, m MetricInfo, an *AboveNull) string {
+	var parts []string
+	for _, name := range []string{an.Model, an.Null} {
+		sc := findScore(r, name, an.BaseExtent)
+		if sc == nil {
+			continue
+		}
+		if _, ok, _, _, _, _ := metricValue(m, sc); !ok {
+			parts = append(parts, name+undefinedWhy(m, sc))
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return ": it is undefined there for " + strings.Join(parts, " and for ")
 }
 
 // againstText is "0.866 against 0.862", the model's and the null's
@@ -511,6 +533,16 @@ func (an *AboveNull) gapEnds() (small, large string) {
 	}
 	s, l := an.gap(an.SmallestExtent), an.gap(an.LargestExtent)
 	return end(an.SmallestExtent, "smallest", s != nil && s.AreaKm2 <= lo), end(an.LargestExtent, "largest", l != nil && l.AreaKm2 >= hi)
+}
+
+// metricOf names metric m of model inside a sentence, the E of a
+// partial ROC ratio after the model: "AUC of good", "the partial ROC
+// ratio of good at E = 0.05" (scoreName at a sentence's start).
+func metricOf(m MetricInfo, model string) string {
+	if m.Kind == MetricPartialROC {
+		return fmt.Sprintf("the partial ROC ratio of %s at E = %s", model, fmtG(m.E))
+	}
+	return m.Label + " of " + model
 }
 
 // metricPhrase names metric m inside a sentence: "AUC", "the partial ROC

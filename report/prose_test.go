@@ -1267,3 +1267,20 @@ func TestAboveNullValuesOnCommonPoints(t *testing.T) {
 		checkWords(t, c.name, aboveNullSentence(r, m, &an), c.want, c.unwant)
 	}
 }
+
+// TestAboveNullUndefinedSaysWhy: a model-minus-null difference that
+// could not be formed because one side's score is undefined on the base
+// says which and why; "could not be formed." stood alone (seen on the
+// demo's coarse at E = 0.05).
+func TestAboveNullUndefinedSaysWhy(t *testing.T) {
+	m := MetricInfo{Key: MetricKeyPartialROC(0.05), Label: "partial ROC ratio, E = 0.05", Kind: MetricPartialROC, E: 0.05}
+	an := AboveNull{Metric: m.Key, Model: "coarse", Null: "distance_null", NullKind: NullDistance, BaseExtent: "base",
+		Gaps: []NullGap{{Extent: "base", CommonPoints: 90, Method: "paired_resamples"}}}
+	r := &Results{Scores: []Score{
+		{Model: "coarse", Extent: "base", Scored: true, TestPoints: 90, PartialROC: []PartialROC{{E: 0.05, Reason: "the crossing falls among tied test points"}}},
+		{Model: "distance_null", Extent: "base", Scored: true, TestPoints: 90, PartialROC: []PartialROC{{E: 0.05, Defined: true, Ratio: 1.4}}},
+	}}
+	checkWords(t, "sentence", aboveNullSentence(r, m, &an),
+		[]string{"On base, the partial ROC ratio of coarse at E = 0.05 minus distance_null could not be formed: it is undefined there for coarse (the crossing falls among tied test points)."},
+		[]string{"for distance_null"})
+}

@@ -262,8 +262,11 @@
 #     changed, scores.csv unchanged).
 #   - rewritten on 2026-12-05, session 17 (a partial ROC verdict's
 #     sentence names its score "Partial ROC ratio of good at E = 0.05",
-#     not "Partial ROC ratio, E = 0.05 of good"; no number changed,
-#     scores.csv unchanged).
+#     not "Partial ROC ratio, E = 0.05 of good", and the sentences on a
+#     model against a null "the partial ROC ratio of good at E = 0.05",
+#     not "the partial ROC ratio at E = 0.05 of good", and one that could
+#     not be formed says which side is undefined there and why; no number
+#     changed, scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
