@@ -233,6 +233,14 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
 	s.dialect = dialectOfDriver(ds.Driver().ShortName())
+	if d := ds.Driver().ShortName(); d == "LIBKML" || d == "KML" {
+		// Before GDAL's reading: a coordinates text it read in part
+		// would otherwise be refused, if at all, for what it made of it.
+		if p := brokenKML(path); p != nil {
+			s.close()
+			return nil, nil, kmlCoordinatesError(path, p)
+		}
+	}
 	warns, err := s.ready(field)
 	if err != nil {
 		s.close()

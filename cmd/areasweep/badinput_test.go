@@ -610,6 +610,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model a TIFF cut after 8 bytes", f.withModel(f.file("cut8.tif", "II*\x00\x08\x00\x00\x00")), 2, []string{"cut8.tif", "its TIFF header cannot be read: the file is cut short"}, "", ""},
 		{"region a KML file cut short", f.withRegion(f.file("cut.kml", `<?xml version="1.0" encoding="utf-8" ?>
 <kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark>`)), 2, []string{"cut.kml", "its XML is not valid at line 2", "ends before its elements are closed"}, "", ""},
+		// LIBKML read a <coordinates> text up to its first word that is
+		// not a number: the area was cut short, or skipped as no geometry.
+		{"region a KML Placemark whose coordinates are not coordinates", f.withRegion(f.file("garbage.kml", `<?xml version="1.0" encoding="utf-8" ?>
+<kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark><name>Area</name><Polygon><outerBoundaryIs><LinearRing>
+<coordinates>12.5,41.5 18.5,41.5 18.5,46.5 garbage</coordinates></LinearRing></outerBoundaryIs></Polygon></Placemark></Document></kml>`)), 2, []string{"region: ", `garbage.kml Placemark 1 ("Area")`, "line 3", `"garbage"`, "delete the Placemark"}, "", ""},
 		{"region a GML file cut short", f.withRegion(f.file("cut.gml", `<?xml version="1.0" encoding="utf-8" ?>
 <ogr:FeatureCollection xmlns:ogr="http://ogr.maptools.org/" xmlns:gml="http://www.opengis.net/gml">
 <gml:featureMember><ogr:region>`)), 2, []string{"cut.gml", "its XML is not valid at line 3", "ends before its elements are closed"}, "", ""},
