@@ -317,7 +317,7 @@ func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 	}
 	which, found := "the first", false
 	for i, l := range layers {
-		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
+		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 || surfaceBase(base) {
 			if i > 0 {
 				which = "the first of polygons"
 			}
@@ -429,6 +429,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		}
 		s.closes = append(s.closes, func() { flat.Close() })
 		ds, layer = flat, flat.Layers()[0]
+		if err := surfacesToAreas(path, layer, lsr); err != nil {
+			return warns, err
+		}
 	}
 	if err := checkFeatureTypes(path, layer); err != nil {
 		return warns, err
@@ -1229,13 +1232,76 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 // coordinates or a curved geometry type (OGR's geometry type codes: the
 // 2.5D flag 0x80000000, ISO codes 1000 and up for Z, M and ZM, and 8 to 12
 // for the curve types), which the plane, linear reading of shapeOf does
-// not take.
+// not take, or is or holds a triangle, TIN or polyhedral surface, whose
+// faces are read as polygons in the copy it asks for (surfacesToAreas).
 func needsFlattening(layer godal.Layer) bool {
 	return anyGeometry(layer, func(g *godal.Geometry) bool {
 		t := uint32(g.Type())
 		base := (t & 0x7fffffff) % 1000
-		return t&0x80000000 != 0 || t&0x7fffffff >= 1000 || (base >= 8 && base <= 12)
+		return t&0x80000000 != 0 || t&0x7fffffff >= 1000 || (base >= 8 && base <= 12) || holdsSurface(g)
 	})
+}
+
+// surfaceBase reports whether base, an OGR geometry type code without
+// its Z and M parts, is a polyhedral surface (15), a TIN (16) or a
+// triangle (17): areas made of polygon faces.
+func surfaceBase(base uint32) bool { return base >= 15 && base <= 17 }
+
+// holdsSurface reports whether g is, or is a collection holding (nested
+// or not), a triangle, TIN or polyhedral surface.
+func holdsSurface(g *godal.Geometry) bool {
+	base := (uint32(g.Type()) & 0x7fffffff) % 1000
+	if surfaceBase(base) {
+		return true
+	}
+	if base != 7 { // a geometry collection
+		return false
+	}
+	for i := 0; i < g.GeometryCount(); i++ {
+		if sub, err := g.SubGeometry(i); err == nil && holdsSurface(sub) {
+			return true
+		}
+	}
+	return false
+}
+
+// surfacesToAreas replaces, in layer (the copy in memory ready made),
+// each geometry that is or holds a triangle, TIN or polyhedral surface
+// by the area its faces cover in the plane (faces): a triangle is a
+// polygon of one ring, a TIN or polyhedral surface a set of them (faces
+// standing upright in 3D cover no area). Without it a triangle was
+// refused as "not a polygon" unless it had Z coordinates (the 3D copy
+// turned it into a polygon), and so were a TIN and a polyhedral surface
+// of several faces. A collection that also holds a point or a line is
+// left as it is, for checkFeatureTypes to refuse.
+func surfacesToAreas(path string, layer godal.Layer, srs *godal.SpatialRef) error {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for n := 1; ; n++ {
+		f := layer.NextFeature()
+		if f == nil {
+			return nil
+		}
+		g := f.Geometry()
+		if noGeometry(g) || !holdsSurface(g) {
+			f.Close()
+			continue
+		}
+		area, err := faces(g, srs)
+		if err != nil {
+			f.Close()
+			continue
+		}
+		err = f.SetGeometry(area)
+		area.Close()
+		if err == nil {
+			err = layer.UpdateFeature(f)
+		}
+		f.Close()
+		if err != nil {
+			return fmt.Errorf("extent: %s feature %d: its faces (a triangle, TIN or polyhedral surface) could not be read as an area (%s); save the layer as polygons in a GIS (e.g. ogr2ogr -nlt MULTIPOLYGON OUT.gpkg %s)", path, n, gdalmsg.Cause(err.Error()), path)
+		}
+	}
 }
 
 // polygonProblem says what makes g unusable as an area, or "".
