@@ -413,6 +413,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		case s.ds.Driver().ShortName() == "TopoJSON":
 			return warns, topoJSONNoCRS(path, layer.Name())
 		}
+		if err := unreadablePRJ(path, s.ds.Driver().ShortName()); err != nil {
+			return warns, err
+		}
 		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	}
 	s.lsr = lsr
@@ -1182,6 +1185,49 @@ func coordinateProblem(g *godal.Geometry, geographic bool) string {
 		return fmt.Sprintf("has a vertex at longitude %g, beyond 540 degrees", b[2])
 	}
 	return ""
+}
+
+// unreadablePRJ refuses a shapefile (or a CSV table, whose driver reads
+// one too) that GDAL gave no CRS although a .prj lies beside it: the
+// .prj is empty, holds text that is no CRS, or holds one in a form
+// GDAL's reading of a .prj does not take (WKT2, or a blank line before
+// the WKT, as gdalsrsinfo writes it). Such a layer was said to have "no
+// CRS", and the user looked for a missing file. nil when there is no
+// .prj (the refusal for no CRS then says what to do) or for another
+// driver.
+func unreadablePRJ(path, driver string) error {
+	if driver != "ESRI Shapefile" && driver != "CSV" {
+		return nil
+	}
+	ext := filepath.Ext(path)
+	prj := sidecarPath(strings.TrimSuffix(path, ext), ext, ".prj")
+	if prj == "" {
+		return nil
+	}
+	b, err := os.ReadFile(prj)
+	if err != nil {
+		return fmt.Errorf("extent: %s has no CRS: its CRS file %s cannot be read (%s); make it readable, or save the layer with its CRS (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, prj, gdalmsg.Cause(err.Error()), path)
+	}
+	text := strings.TrimSpace(string(b))
+	what := fmt.Sprintf("could not be read as a CRS (it holds %q)", cutText(text))
+	switch {
+	case text == "":
+		what = "is empty"
+	case crsText(text):
+		what = "holds a CRS in a form GDAL does not take from a .prj (WKT2, or a blank line before the WKT)"
+	}
+	return fmt.Errorf("extent: %s has no CRS: its CRS file %s %s; write the CRS its coordinates are in into it as one line of ESRI WKT (e.g. gdalsrsinfo -o wkt_esri --single-line EPSG:4326 > %s, with that CRS's EPSG code), or save the layer with its CRS (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)",
+		path, prj, what, prj, path)
+}
+
+// crsText reports whether text is a CRS in WKT (WKT1, ESRI's or WKT2).
+func crsText(text string) bool {
+	sr, err := godal.NewSpatialRefFromWKT(text)
+	if err != nil {
+		return false
+	}
+	sr.Close()
+	return true
 }
 
 // undefinedCRS reports a CRS that only says it is unknown: the GeoPackage

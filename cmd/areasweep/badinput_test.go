@@ -419,12 +419,15 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	tifNoPrj := filepath.Join(f.dir, "tifnoprj.tif")
 	writeRaster(t, tifNoPrj, f.w, f.h, f.gt, f.vals, false)
 	noCRSshp := filepath.Join(f.dir, "nocrs.shp")
-	{
-		ds, err := godal.CreateVector(godal.Shapefile, noCRSshp)
+	// badPRJshp's .prj holds text that is no CRS: it was refused as
+	// having "no CRS", as if the .prj were missing.
+	badPRJshp := filepath.Join(f.dir, "badprj.shp")
+	for _, p := range []string{noCRSshp, badPRJshp} {
+		ds, err := godal.CreateVector(godal.Shapefile, p)
 		if err != nil {
 			t.Fatal(err)
 		}
-		l, err := ds.CreateLayer("nocrs", nil, godal.GTPolygon)
+		l, err := ds.CreateLayer(strings.TrimSuffix(filepath.Base(p), ".shp"), nil, godal.GTPolygon)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -432,6 +435,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		l.NewFeature(g)
 		ds.Close()
 	}
+	f.file("badprj.prj", "WGS84 lon/lat\n")
 	undefGPKG := filepath.Join(f.dir, "undefined.gpkg")
 	{
 		src, err := godal.Open(f.region, godal.VectorOnly())
@@ -727,6 +731,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region collection with a point", f.withRegion(mixedCollection), 2, []string{"collection.geojson feature 1", "part 2", "point"}, "", ""},
 		{"region vertex beyond the pole", f.withRegion(beyondPole), 2, []string{"pole.geojson feature 1", "latitude 99"}, "", ""},
 		{"region without CRS", f.withRegion(noCRSshp), 2, []string{"nocrs.shp", "no CRS"}, "", ""},
+		{"region whose .prj is no CRS", f.withRegion(badPRJshp), 2, []string{"region: ", "badprj.shp has no CRS: its CRS file", `badprj.prj could not be read as a CRS (it holds "WGS84 lon/lat")`, "gdalsrsinfo -o wkt_esri --single-line EPSG:4326 >"}, "", ""},
 		{"region undefined CRS", f.withRegion(undefGPKG), 2, []string{"undefined.gpkg", "undefined CRS", "Undefined geographic SRS"}, "", ""},
 		{"region outside the raster", f.withRegion(f.far), 2, []string{"far.geojson", "covers no cell"}, "", ""},
 		{"region across the antimeridian", f.withRegion(antimeridian), 2, []string{"antimeridian.geojson", "from lon 170.0000 to -170.0000"}, "", ""},
