@@ -195,6 +195,10 @@ type polygonSource struct {
 	// that feature repairs.
 	invalid map[int]bool
 
+	// driver is the short name of the GDAL driver that opened the file
+	// (s.ds may be a flattened copy in memory since).
+	driver string
+
 	// dialect is the JSON format of the file as GDAL opened it (s.ds may
 	// be a flattened copy in memory since), notJSON for other formats:
 	// brokenJSON can then tell a feature without geometry from one whose
@@ -232,8 +236,9 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 		return nil, nil, openVectorError(path, err)
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
-	s.dialect = dialectOfDriver(ds.Driver().ShortName())
-	if d := ds.Driver().ShortName(); d == "LIBKML" || d == "KML" {
+	s.driver = ds.Driver().ShortName()
+	s.dialect = dialectOfDriver(s.driver)
+	if s.driver == "LIBKML" || s.driver == "KML" {
 		// Before GDAL's reading: a coordinates text it read in part
 		// would otherwise be refused, if at all, for what it made of it.
 		if p := brokenKML(path); p != nil {
@@ -385,7 +390,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 	path := s.path
 	layers := s.ds.Layers()
 	if len(layers) == 0 {
-		return nil, fmt.Errorf("extent: %s has no layer", path)
+		// A KML document without a Placemark, a GeoPackage without a
+		// table of features.
+		return nil, fmt.Errorf("extent: %s holds no layer of features at all, so no polygons; give the file that holds the area's polygons, or export them again from the GIS", path)
 	}
 	layer, warn := chooseLayer(path, layers)
 	if warn != "" {
@@ -549,9 +556,23 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 			// none). The warning above would otherwise be the only clue.
 			return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon to use: none of its %d feature(s) has a geometry GDAL can read (each is empty or cannot be decoded); open the file in a GIS, check or redraw the polygons, and export them again", s.path, s.layer.Name(), len(empty))
 		}
-		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
+		return nil, nil, s.emptyLayer()
 	}
 	return byID, order, nil
+}
+
+// emptyLayer is the refusal of a layer that holds no features: it said
+// only that the layer "has no polygon features", with nothing of what
+// the file holds or what to do. An export of a selection with nothing
+// selected, or through a filter that matched nothing, writes such a
+// file.
+func (s *polygonSource) emptyLayer() error {
+	what := ""
+	if s.driver == "GeoJSON" {
+		what = ` (a FeatureCollection whose "features" list is empty)`
+	}
+	return fmt.Errorf("extent: %s layer %q holds no features at all%s, so no polygons; give the file that holds the area's polygons, or export them again from the GIS (an export of a selection with nothing selected, or through a filter that matched nothing, writes such a file)",
+		s.path, s.layer.Name(), what)
 }
 
 // topoJSONNoCRS is the refusal of a TopoJSON layer: GDAL reads no CRS

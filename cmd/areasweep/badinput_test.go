@@ -720,7 +720,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model is a vector file", f.withModel(f.region), 2, []string{"model m", "region.geojson is a vector file or a table", "not a raster"}, "", ""},
 		{"ecoregions error names the input", f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone"), 2, []string{"ecoregions: ", `no field "zone"`}, "", ""},
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
-		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
+		{"region empty layer", f.withRegion(emptyLayer), 2, []string{`empty.geojson layer "empty" holds no features at all (a FeatureCollection whose "features" list is empty)`, "give the file that holds the area's polygons, or export them again"}, "", ""},
 		{"region whose features all lack a geometry", f.withRegion(noGeometries), 2, []string{"nogeometries.geojson", "none of its 2 feature(s) has a geometry GDAL can read", "export them again"}, "", ""},
 		{"region GeoJSONSeq with a geometry that cannot be decoded", f.withRegion(seqBroken), 2, []string{"region.geojsonl feature 2 has a geometry that cannot be decoded", `"Polygn"`, "set its \"geometry\" to null"}, "", ""},
 		{"region TopoJSON with an arc it does not have", f.withRegion(topoBroken), 2, []string{`region.topojson layer "region" feature 2 has a geometry that cannot be decoded`, "refers to arc 5", "ogr2ogr -a_srs EPSG:4326"}, "", ""},
