@@ -455,7 +455,7 @@ func TestBadGeometry(t *testing.T) {
 
 	empty := filepath.Join(dir, "empty.geojson")
 	os.WriteFile(empty, []byte(`{"type":"FeatureCollection","features":[]}`), 0o644)
-	if _, _, err := ReadShape(empty, g); err == nil || !strings.Contains(err.Error(), "empty.geojson") || !strings.Contains(err.Error(), "no polygon features") {
+	if _, _, err := ReadShape(empty, g); err == nil || !strings.Contains(err.Error(), "empty.geojson") || !strings.Contains(err.Error(), "holds no features at all") {
 		t.Errorf("empty layer: %v", err)
 	}
 

@@ -195,6 +195,10 @@ type polygonSource struct {
 	// that feature repairs.
 	invalid map[int]bool
 
+	// driver is the short name of the GDAL driver that opened the file
+	// (s.ds may be a flattened copy in memory since).
+	driver string
+
 	// dialect is the JSON format of the file as GDAL opened it (s.ds may
 	// be a flattened copy in memory since), notJSON for other formats:
 	// brokenJSON can then tell a feature without geometry from one whose
@@ -232,7 +236,16 @@ func openPolygons(path, field string) (*polygonSource, []string, error) {
 		return nil, nil, openVectorError(path, err)
 	}
 	s := &polygonSource{path: path, ds: ds, closes: []func(){func() { ds.Close() }}}
-	s.dialect = dialectOfDriver(ds.Driver().ShortName())
+	s.driver = ds.Driver().ShortName()
+	s.dialect = dialectOfDriver(s.driver)
+	if s.driver == "LIBKML" || s.driver == "KML" {
+		// Before GDAL's reading: a coordinates text it read in part
+		// would otherwise be refused, if at all, for what it made of it.
+		if p := brokenKML(path); p != nil {
+			s.close()
+			return nil, nil, kmlCoordinatesError(path, p)
+		}
+	}
 	warns, err := s.ready(field)
 	if err != nil {
 		s.close()
@@ -309,7 +322,7 @@ func chooseLayer(path string, layers []godal.Layer) (godal.Layer, string) {
 	}
 	which, found := "the first", false
 	for i, l := range layers {
-		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 {
+		if base := (uint32(l.Type()) & 0x7fffffff) % 1000; base == 3 || base == 6 || base == 10 || base == 12 || surfaceBase(base) {
 			if i > 0 {
 				which = "the first of polygons"
 			}
@@ -377,7 +390,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 	path := s.path
 	layers := s.ds.Layers()
 	if len(layers) == 0 {
-		return nil, fmt.Errorf("extent: %s has no layer", path)
+		// A KML document without a Placemark, a GeoPackage without a
+		// table of features.
+		return nil, fmt.Errorf("extent: %s holds no layer of features at all, so no polygons; give the file that holds the area's polygons, or export them again from the GIS", path)
 	}
 	layer, warn := chooseLayer(path, layers)
 	if warn != "" {
@@ -405,6 +420,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		case s.ds.Driver().ShortName() == "TopoJSON":
 			return warns, topoJSONNoCRS(path, layer.Name())
 		}
+		if err := unreadablePRJ(path, s.ds.Driver().ShortName()); err != nil {
+			return warns, err
+		}
 		return warns, fmt.Errorf("extent: %s layer %q has no CRS; give it the one its coordinates are in (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, layer.Name(), path)
 	}
 	s.lsr = lsr
@@ -421,6 +439,9 @@ func (s *polygonSource) ready(field string) ([]string, error) {
 		}
 		s.closes = append(s.closes, func() { flat.Close() })
 		ds, layer = flat, flat.Layers()[0]
+		if err := surfacesToAreas(path, layer, lsr); err != nil {
+			return warns, err
+		}
 	}
 	if err := checkFeatureTypes(path, layer); err != nil {
 		return warns, err
@@ -535,9 +556,23 @@ func (s *polygonSource) unionByID(warns *[]string) (map[string]*godal.Geometry, 
 			// none). The warning above would otherwise be the only clue.
 			return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon to use: none of its %d feature(s) has a geometry GDAL can read (each is empty or cannot be decoded); open the file in a GIS, check or redraw the polygons, and export them again", s.path, s.layer.Name(), len(empty))
 		}
-		return nil, nil, fmt.Errorf("extent: %s layer %q has no polygon features", s.path, s.layer.Name())
+		return nil, nil, s.emptyLayer()
 	}
 	return byID, order, nil
+}
+
+// emptyLayer is the refusal of a layer that holds no features: it said
+// only that the layer "has no polygon features", with nothing of what
+// the file holds or what to do. An export of a selection with nothing
+// selected, or through a filter that matched nothing, writes such a
+// file.
+func (s *polygonSource) emptyLayer() error {
+	what := ""
+	if s.driver == "GeoJSON" {
+		what = ` (a FeatureCollection whose "features" list is empty)`
+	}
+	return fmt.Errorf("extent: %s layer %q holds no features at all%s, so no polygons; give the file that holds the area's polygons, or export them again from the GIS (an export of a selection with nothing selected, or through a filter that matched nothing, writes such a file)",
+		s.path, s.layer.Name(), what)
 }
 
 // topoJSONNoCRS is the refusal of a TopoJSON layer: GDAL reads no CRS
@@ -1173,6 +1208,49 @@ func coordinateProblem(g *godal.Geometry, geographic bool) string {
 	return ""
 }
 
+// unreadablePRJ refuses a shapefile (or a CSV table, whose driver reads
+// one too) that GDAL gave no CRS although a .prj lies beside it: the
+// .prj is empty, holds text that is no CRS, or holds one in a form
+// GDAL's reading of a .prj does not take (WKT2, or a blank line before
+// the WKT, as gdalsrsinfo writes it). Such a layer was said to have "no
+// CRS", and the user looked for a missing file. nil when there is no
+// .prj (the refusal for no CRS then says what to do) or for another
+// driver.
+func unreadablePRJ(path, driver string) error {
+	if driver != "ESRI Shapefile" && driver != "CSV" {
+		return nil
+	}
+	ext := filepath.Ext(path)
+	prj := sidecarPath(strings.TrimSuffix(path, ext), ext, ".prj")
+	if prj == "" {
+		return nil
+	}
+	b, err := os.ReadFile(prj)
+	if err != nil {
+		return fmt.Errorf("extent: %s has no CRS: its CRS file %s cannot be read (%s); make it readable, or save the layer with its CRS (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)", path, prj, gdalmsg.Cause(err.Error()), path)
+	}
+	text := strings.TrimSpace(string(b))
+	what := fmt.Sprintf("could not be read as a CRS (it holds %q)", cutText(text))
+	switch {
+	case text == "":
+		what = "is empty"
+	case crsText(text):
+		what = "holds a CRS in a form GDAL does not take from a .prj (WKT2, or a blank line before the WKT)"
+	}
+	return fmt.Errorf("extent: %s has no CRS: its CRS file %s %s; write the CRS its coordinates are in into it as one line of ESRI WKT (e.g. gdalsrsinfo -o wkt_esri --single-line EPSG:4326 > %s, with that CRS's EPSG code), or save the layer with its CRS (e.g. ogr2ogr -a_srs EPSG:4326 OUT.gpkg %s)",
+		path, prj, what, prj, path)
+}
+
+// crsText reports whether text is a CRS in WKT (WKT1, ESRI's or WKT2).
+func crsText(text string) bool {
+	sr, err := godal.NewSpatialRefFromWKT(text)
+	if err != nil {
+		return false
+	}
+	sr.Close()
+	return true
+}
+
 // undefinedCRS reports a CRS that only says it is unknown: the GeoPackage
 // "Undefined geographic SRS" (srs_id 0) and "Undefined Cartesian SRS"
 // (srs_id -1), and local engineering CRSs.
@@ -1221,13 +1299,76 @@ func checkFeatureTypes(path string, layer godal.Layer) error {
 // coordinates or a curved geometry type (OGR's geometry type codes: the
 // 2.5D flag 0x80000000, ISO codes 1000 and up for Z, M and ZM, and 8 to 12
 // for the curve types), which the plane, linear reading of shapeOf does
-// not take.
+// not take, or is or holds a triangle, TIN or polyhedral surface, whose
+// faces are read as polygons in the copy it asks for (surfacesToAreas).
 func needsFlattening(layer godal.Layer) bool {
 	return anyGeometry(layer, func(g *godal.Geometry) bool {
 		t := uint32(g.Type())
 		base := (t & 0x7fffffff) % 1000
-		return t&0x80000000 != 0 || t&0x7fffffff >= 1000 || (base >= 8 && base <= 12)
+		return t&0x80000000 != 0 || t&0x7fffffff >= 1000 || (base >= 8 && base <= 12) || holdsSurface(g)
 	})
+}
+
+// surfaceBase reports whether base, an OGR geometry type code without
+// its Z and M parts, is a polyhedral surface (15), a TIN (16) or a
+// triangle (17): areas made of polygon faces.
+func surfaceBase(base uint32) bool { return base >= 15 && base <= 17 }
+
+// holdsSurface reports whether g is, or is a collection holding (nested
+// or not), a triangle, TIN or polyhedral surface.
+func holdsSurface(g *godal.Geometry) bool {
+	base := (uint32(g.Type()) & 0x7fffffff) % 1000
+	if surfaceBase(base) {
+		return true
+	}
+	if base != 7 { // a geometry collection
+		return false
+	}
+	for i := 0; i < g.GeometryCount(); i++ {
+		if sub, err := g.SubGeometry(i); err == nil && holdsSurface(sub) {
+			return true
+		}
+	}
+	return false
+}
+
+// surfacesToAreas replaces, in layer (the copy in memory ready made),
+// each geometry that is or holds a triangle, TIN or polyhedral surface
+// by the area its faces cover in the plane (faces): a triangle is a
+// polygon of one ring, a TIN or polyhedral surface a set of them (faces
+// standing upright in 3D cover no area). Without it a triangle was
+// refused as "not a polygon" unless it had Z coordinates (the 3D copy
+// turned it into a polygon), and so were a TIN and a polyhedral surface
+// of several faces. A collection that also holds a point or a line is
+// left as it is, for checkFeatureTypes to refuse.
+func surfacesToAreas(path string, layer godal.Layer, srs *godal.SpatialRef) error {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for n := 1; ; n++ {
+		f := layer.NextFeature()
+		if f == nil {
+			return nil
+		}
+		g := f.Geometry()
+		if noGeometry(g) || !holdsSurface(g) {
+			f.Close()
+			continue
+		}
+		area, err := faces(g, srs)
+		if err != nil {
+			f.Close()
+			continue
+		}
+		err = f.SetGeometry(area)
+		area.Close()
+		if err == nil {
+			err = layer.UpdateFeature(f)
+		}
+		f.Close()
+		if err != nil {
+			return fmt.Errorf("extent: %s feature %d: its faces (a triangle, TIN or polyhedral surface) could not be read as an area (%s); save the layer as polygons in a GIS (e.g. ogr2ogr -nlt MULTIPOLYGON OUT.gpkg %s)", path, n, gdalmsg.Cause(err.Error()), path)
+		}
+	}
 }
 
 // polygonProblem says what makes g unusable as an area, or "".

@@ -78,6 +78,45 @@ static unsigned char *extentMakeValid(const unsigned char *wkb, int len, int *ou
 	CPLPopErrorHandler();
 	return out;
 }
+
+// extentFaces returns the geometry in wkb, a triangle, TIN or polyhedral
+// surface or a collection holding them, as the area its faces cover: a
+// multipolygon of the faces (OGR_G_ForceTo), made valid by MakeValid's
+// structure method when faces share edges or overlap (their union), as
+// WKB of *outLen bytes to free with VSIFree; NULL when it is not made of
+// areas alone (a collection holding a point). Messages raised meanwhile
+// are dropped.
+static unsigned char *extentFaces(const unsigned char *wkb, int len, int *outLen) {
+	OGRGeometryH g = NULL;
+	unsigned char *out = NULL;
+	const char *opts[] = {"METHOD=STRUCTURE", NULL};
+	CPLPushErrorHandler(CPLQuietErrorHandler);
+	if (OGR_G_CreateFromWkb(wkb, NULL, &g, len) == OGRERR_NONE && g != NULL) {
+		g = OGR_G_ForceTo(g, wkbMultiPolygon, NULL);
+		if (g != NULL && wkbFlatten(OGR_G_GetGeometryType(g)) == wkbMultiPolygon && !OGR_G_IsValid(g)) {
+			OGRGeometryH v = OGR_G_MakeValidEx(g, (CSLConstList)opts);
+			OGR_G_DestroyGeometry(g);
+			g = v;
+		}
+		if (g != NULL && wkbFlatten(OGR_G_GetGeometryType(g)) != wkbMultiPolygon && wkbFlatten(OGR_G_GetGeometryType(g)) != wkbPolygon) {
+			OGR_G_DestroyGeometry(g);
+			g = NULL;
+		}
+		if (g != NULL) {
+			int n = OGR_G_WkbSize(g);
+			out = (unsigned char *)VSIMalloc(n);
+			if (out != NULL && OGR_G_ExportToWkb(g, wkbNDR, out) == OGRERR_NONE) {
+				*outLen = n;
+			} else {
+				VSIFree(out);
+				out = NULL;
+			}
+			OGR_G_DestroyGeometry(g);
+		}
+	}
+	CPLPopErrorHandler();
+	return out;
+}
 */
 import "C"
 
@@ -141,6 +180,28 @@ func makeValid(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error
 		return nil, errors.New("GEOS gave a geometry that cannot be read")
 	}
 	return fixed, nil
+}
+
+// faces returns g (in srs), a triangle, TIN or polyhedral surface or a
+// collection holding them, as the area its faces cover in the plane (see
+// extentFaces), or an error when it is not made of faces and polygons
+// alone.
+func faces(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	b, err := g.WKB()
+	if err != nil || len(b) == 0 {
+		return nil, errors.New("its geometry cannot be read")
+	}
+	var n C.int
+	out := C.extentFaces((*C.uchar)(unsafe.Pointer(&b[0])), C.int(len(b)), &n)
+	if out == nil {
+		return nil, errors.New("it is not made of faces alone")
+	}
+	defer C.VSIFree(unsafe.Pointer(out))
+	area, err := godal.NewGeometryFromWKB(C.GoBytes(unsafe.Pointer(out), n), srs)
+	if err != nil {
+		return nil, errors.New("its faces gave a geometry that cannot be read")
+	}
+	return area, nil
 }
 
 // invalidReason turns GEOS's reason for an invalid geometry into our words

@@ -419,12 +419,15 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 	tifNoPrj := filepath.Join(f.dir, "tifnoprj.tif")
 	writeRaster(t, tifNoPrj, f.w, f.h, f.gt, f.vals, false)
 	noCRSshp := filepath.Join(f.dir, "nocrs.shp")
-	{
-		ds, err := godal.CreateVector(godal.Shapefile, noCRSshp)
+	// badPRJshp's .prj holds text that is no CRS: it was refused as
+	// having "no CRS", as if the .prj were missing.
+	badPRJshp := filepath.Join(f.dir, "badprj.shp")
+	for _, p := range []string{noCRSshp, badPRJshp} {
+		ds, err := godal.CreateVector(godal.Shapefile, p)
 		if err != nil {
 			t.Fatal(err)
 		}
-		l, err := ds.CreateLayer("nocrs", nil, godal.GTPolygon)
+		l, err := ds.CreateLayer(strings.TrimSuffix(filepath.Base(p), ".shp"), nil, godal.GTPolygon)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -432,6 +435,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		l.NewFeature(g)
 		ds.Close()
 	}
+	f.file("badprj.prj", "WGS84 lon/lat\n")
 	undefGPKG := filepath.Join(f.dir, "undefined.gpkg")
 	{
 		src, err := godal.Open(f.region, godal.VectorOnly())
@@ -610,6 +614,11 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model a TIFF cut after 8 bytes", f.withModel(f.file("cut8.tif", "II*\x00\x08\x00\x00\x00")), 2, []string{"cut8.tif", "its TIFF header cannot be read: the file is cut short"}, "", ""},
 		{"region a KML file cut short", f.withRegion(f.file("cut.kml", `<?xml version="1.0" encoding="utf-8" ?>
 <kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark>`)), 2, []string{"cut.kml", "its XML is not valid at line 2", "ends before its elements are closed"}, "", ""},
+		// LIBKML read a <coordinates> text up to its first word that is
+		// not a number: the area was cut short, or skipped as no geometry.
+		{"region a KML Placemark whose coordinates are not coordinates", f.withRegion(f.file("garbage.kml", `<?xml version="1.0" encoding="utf-8" ?>
+<kml xmlns="http://www.opengis.net/kml/2.2"><Document><Placemark><name>Area</name><Polygon><outerBoundaryIs><LinearRing>
+<coordinates>12.5,41.5 18.5,41.5 18.5,46.5 garbage</coordinates></LinearRing></outerBoundaryIs></Polygon></Placemark></Document></kml>`)), 2, []string{"region: ", `garbage.kml Placemark 1 ("Area")`, "line 3", `"garbage"`, "delete the Placemark"}, "", ""},
 		{"region a GML file cut short", f.withRegion(f.file("cut.gml", `<?xml version="1.0" encoding="utf-8" ?>
 <ogr:FeatureCollection xmlns:ogr="http://ogr.maptools.org/" xmlns:gml="http://www.opengis.net/gml">
 <gml:featureMember><ogr:region>`)), 2, []string{"cut.gml", "its XML is not valid at line 3", "ends before its elements are closed"}, "", ""},
@@ -711,7 +720,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"model is a vector file", f.withModel(f.region), 2, []string{"model m", "region.geojson is a vector file or a table", "not a raster"}, "", ""},
 		{"ecoregions error names the input", f.run("--ecoregions", ecoGood, "--ecoregion-field", "zone"), 2, []string{"ecoregions: ", `no field "zone"`}, "", ""},
 		{"region not a vector file", f.withRegion(notVector), 2, []string{"notvector.gpkg", "not a vector file"}, "", ""},
-		{"region empty layer", f.withRegion(emptyLayer), 2, []string{"empty.geojson", "no polygon features"}, "", ""},
+		{"region empty layer", f.withRegion(emptyLayer), 2, []string{`empty.geojson layer "empty" holds no features at all (a FeatureCollection whose "features" list is empty)`, "give the file that holds the area's polygons, or export them again"}, "", ""},
 		{"region whose features all lack a geometry", f.withRegion(noGeometries), 2, []string{"nogeometries.geojson", "none of its 2 feature(s) has a geometry GDAL can read", "export them again"}, "", ""},
 		{"region GeoJSONSeq with a geometry that cannot be decoded", f.withRegion(seqBroken), 2, []string{"region.geojsonl feature 2 has a geometry that cannot be decoded", `"Polygn"`, "set its \"geometry\" to null"}, "", ""},
 		{"region TopoJSON with an arc it does not have", f.withRegion(topoBroken), 2, []string{`region.topojson layer "region" feature 2 has a geometry that cannot be decoded`, "refers to arc 5", "ogr2ogr -a_srs EPSG:4326"}, "", ""},
@@ -722,6 +731,7 @@ func (f *badFixture) cases(t *testing.T) []badCase {
 		{"region collection with a point", f.withRegion(mixedCollection), 2, []string{"collection.geojson feature 1", "part 2", "point"}, "", ""},
 		{"region vertex beyond the pole", f.withRegion(beyondPole), 2, []string{"pole.geojson feature 1", "latitude 99"}, "", ""},
 		{"region without CRS", f.withRegion(noCRSshp), 2, []string{"nocrs.shp", "no CRS"}, "", ""},
+		{"region whose .prj is no CRS", f.withRegion(badPRJshp), 2, []string{"region: ", "badprj.shp has no CRS: its CRS file", `badprj.prj could not be read as a CRS (it holds "WGS84 lon/lat")`, "gdalsrsinfo -o wkt_esri --single-line EPSG:4326 >"}, "", ""},
 		{"region undefined CRS", f.withRegion(undefGPKG), 2, []string{"undefined.gpkg", "undefined CRS", "Undefined geographic SRS"}, "", ""},
 		{"region outside the raster", f.withRegion(f.far), 2, []string{"far.geojson", "covers no cell"}, "", ""},
 		{"region across the antimeridian", f.withRegion(antimeridian), 2, []string{"antimeridian.geojson", "from lon 170.0000 to -170.0000"}, "", ""},

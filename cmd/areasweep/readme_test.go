@@ -30,10 +30,11 @@ import (
 // otherToolFlags are double-dash options the README names that belong to
 // other programs, with the program.
 var otherToolFlags = map[string]string{
-	"mem":        "sbatch (the array task's memory request)",
-	"dependency": "sbatch (the merge job waits for the array)",
-	"array":      "sbatch (the tasks resubmitted)",
-	"test":       "scripts/setup.sh (the test set-up)",
+	"mem":         "sbatch (the array task's memory request)",
+	"dependency":  "sbatch (the merge job waits for the array)",
+	"array":       "sbatch (the tasks resubmitted)",
+	"test":        "scripts/setup.sh (the test set-up)",
+	"single-line": "gdalsrsinfo (a .prj GDAL reads: one line, without the blank line it writes first)",
 }
 
 func readREADME(t *testing.T) string {
