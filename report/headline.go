@@ -443,8 +443,40 @@ func scoredAreaRange(a *analysis, s *Sensitivity) (lo, hi float64) {
 // oneExtentHeadline writes the headline of a study with one scored
 // extent (of area lo): there is nothing to compare it with, so no verdict.
 func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float64) {
-	fmt.Fprintf(b, "Only one evaluation extent, %s (%s km², %s), could be scored, so no score can be compared across extents", s.ScoredExtents[0],
-		fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each")+fewerPointsText(a, s))
+	// Why the others are not scored, briefly: "could be scored" read as
+	// a failure where the others duplicate it (sentence audit of
+	// 2026-12-05).
+	others := ""
+	if k := len(s.SkippedExtents); k > 0 {
+		// Grouped by reason, up to three names each.
+		var order []string
+		ids := map[string][]string{}
+		for _, x := range s.SkippedExtents {
+			why := x.Reason
+			if x.DuplicateOf != "" {
+				why = "the same cells as " + x.DuplicateOf
+			}
+			if _, ok := ids[why]; !ok {
+				order = append(order, why)
+			}
+			ids[why] = append(ids[why], x.ID)
+		}
+		var parts []string
+		for _, why := range order {
+			named := ids[why]
+			if len(named) > 3 {
+				named = append(slices.Clone(named[:3]), fmt.Sprintf("%d more", len(ids[why])-3))
+			}
+			parts = append(parts, joinList(named)+": "+why)
+		}
+		other := "the other extent"
+		if k > 1 {
+			other = fmt.Sprintf("the other %d extents", k)
+		}
+		others = fmt.Sprintf(" (%s: %s)", other, strings.Join(parts, "; "))
+	}
+	fmt.Fprintf(b, "Only one evaluation extent, %s (%s km², %s), could be scored%s, so no score can be compared across extents", s.ScoredExtents[0],
+		fmtArea(lo), strings.TrimSuffix(testPointText(s), " on each")+fewerPointsText(a, s), others)
 	var parts []string
 	for _, m := range a.models {
 		if sp := s.findSpread("auc", m); sp != nil && sp.N > 0 {
@@ -453,6 +485,15 @@ func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float
 	}
 	if len(parts) > 0 {
 		fmt.Fprintf(b, "; AUC there: %s", strings.Join(parts, ", "))
+	}
+	// A model scored nowhere (a constant raster) is named, not dropped.
+	for _, m := range s.scoredNowhere() {
+		for _, u := range s.Unscored {
+			if u.Model == m && u.Extent == s.ScoredExtents[0] {
+				fmt.Fprintf(b, "; %s is not scored (%s)", m, u.Reason)
+				break
+			}
+		}
 	}
 	b.WriteString(".")
 }
@@ -678,7 +719,9 @@ func describedModels(base string, mvs []ModelVerdict) (parts, undefined, none []
 		case few > 0 && few == defined:
 			largest += fmt.Sprintf("; each on too few common test points to be read, %d for the largest, our cut-off %d", big.CommonPoints, big.minPoints)
 		case few > 0:
-			largest += fmt.Sprintf("; %d of them on too few common test points to be read", few)
+			// "of the N differences", not "of them": after "0 of 7"
+			// the "them" named nothing (sentence audit of 2026-12-05).
+			largest += fmt.Sprintf("; %d of the %d difference%s on too few common test points to be read", few, defined, Plural(defined))
 		}
 		if len(parts) == 0 {
 			lie := "lie"

@@ -972,8 +972,18 @@ func reviewerWhat(b *strings.Builder, r *Results) {
 // judge.
 func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	n := len(s.ScoredExtents)
-	var robust, sensitive, sensitiveAll, undetermined []string
-	omissionRobust := false // an omission rate is robust by construction
+	// robustOmission holds the omission rates that stayed within the
+	// tolerance: robust by construction, said apart from the other
+	// robust scores (the reason was written after a list holding AUC and
+	// the predicted area, which it does not explain).
+	var robust, robustOmission, sensitiveAll, undetermined []string
+	// sensitive groups the scores extent-sensitive for some models only
+	// by which models are which, so the reply names them: "for at least
+	// one model" hid a model that stayed within the tolerance (sentence
+	// audit of 2026-12-05).
+	type split struct{ labels, sens, rob, und []string }
+	var sensitive []*split
+	splitOf := map[string]*split{}
 	for _, v := range s.Verdicts {
 		if NotCalibrated(v.Metric, PairedKindExtent) {
 			continue // described, not judged: said with the tolerances
@@ -985,13 +995,21 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 			}
 		}
 		switch {
+		case v.Verdict == JudgementRobust && strings.HasPrefix(v.Metric, "omission_"):
+			robustOmission = append(robustOmission, label)
 		case v.Verdict == JudgementRobust:
 			robust = append(robust, label)
-			omissionRobust = omissionRobust || strings.HasPrefix(v.Metric, "omission_")
 		case v.Verdict == JudgementSensitive && s.sensitiveForEvery(v.Metric):
 			sensitiveAll = append(sensitiveAll, label)
 		case v.Verdict == JudgementSensitive:
-			sensitive = append(sensitive, label)
+			k := strings.Join(v.Sensitive, "\x00") + "\x01" + strings.Join(v.Robust, "\x00") + "\x01" + strings.Join(v.Undetermined, "\x00")
+			sp := splitOf[k]
+			if sp == nil {
+				sp = &split{sens: v.Sensitive, rob: v.Robust, und: v.Undetermined}
+				splitOf[k] = sp
+				sensitive = append(sensitive, sp)
+			}
+			sp.labels = append(sp.labels, label)
 		default:
 			undetermined = append(undetermined, label)
 		}
@@ -999,7 +1017,7 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 	if n == 1 {
 		// Nothing to compare: the verdicts are undetermined for want of a
 		// second extent, not of test records.
-		robust, sensitive, sensitiveAll, undetermined = nil, nil, nil, nil
+		robust, robustOmission, sensitive, sensitiveAll, undetermined = nil, nil, nil, nil, nil
 		b.WriteString("With one extent, no score can be compared across extents. ")
 	}
 	// With one model, "for at least one model" and "for every model"
@@ -1013,16 +1031,30 @@ func reviewerVerdicts(b *strings.Builder, s *Sensitivity) {
 		// the verdicts (the demo's AUC, extent-sensitive for both).
 		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitiveAll)), every)
 	}
-	if len(sensitive) > 0 {
-		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sensitive)), some)
-	}
-	if len(robust) > 0 {
-		fmt.Fprintf(b, "%s stayed within the tolerance %s", upperFirst(joinList(robust)), every)
-		if omissionRobust {
-			// Reads as a finding otherwise: say that it cannot fail.
-			b.WriteString(" (an omission rate by construction: its threshold comes from the training records, so on the test records two extents share it omits the same ones)")
+	for _, sp := range sensitive {
+		if len(sp.sens) == 0 {
+			// Model lists not recorded (an older results.json).
+			fmt.Fprintf(b, "%s moved with the extent by more than the tolerance %s. ", upperFirst(joinList(sp.labels)), some)
+			continue
+		}
+		fmt.Fprintf(b, "%s moved with the extent by more than the tolerance for %s", upperFirst(joinList(sp.labels)), joinList(sp.sens))
+		if len(sp.rob) > 0 {
+			fmt.Fprintf(b, " and stayed within it for %s", joinList(sp.rob))
+		}
+		if len(sp.und) > 0 {
+			fmt.Fprintf(b, "; for %s the test records cannot tell", joinList(sp.und))
 		}
 		b.WriteString(". ")
+	}
+	if len(robust) > 0 {
+		fmt.Fprintf(b, "%s stayed within the tolerance %s. ", upperFirst(joinList(robust)), every)
+	}
+	if len(robustOmission) > 0 {
+		// Reads as a finding otherwise: say that it cannot fail. The
+		// threshold is fixed or from the training records, so the
+		// extent does not move it.
+		fmt.Fprintf(b, "%s stayed within the tolerance %s, as %s must: %s threshold does not depend on the extent, so on the test records two extents share it omits the same ones. ",
+			upperFirst(joinList(robustOmission)), every, pick(len(robustOmission) == 1, "an omission rate", "omission rates"), pick(len(robustOmission) == 1, "its", "each one's"))
 	}
 	if len(undetermined) > 0 {
 		// Undetermined: an interval straddles the tolerance, or a score
@@ -1137,7 +1169,10 @@ func aucAnswer(s *Sensitivity) string {
 	case JudgementRobust:
 		// "our tolerance" only when it is our default: a tolerance the
 		// user set is named as theirs, with its value (toleranceText).
-		return fmt.Sprintf("Within %s, the AUC did not depend on which of these extents it was computed on. ", toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: v.Tolerance}))
+		// "did not depend on" claimed no change at all where the
+		// intervals may exclude 0 (+0.001 to +0.002) inside the
+		// tolerance (sentence audit of 2026-12-05).
+		return fmt.Sprintf("The AUC moved by less than %s between these extents: every 95%% interval of its differences lies within it. ", toleranceText(MetricInfo{Kind: MetricAUC, Tolerance: v.Tolerance}))
 	case JudgementSensitive:
 		var parts []string
 		for _, m := range s.ModelNames {
@@ -1215,6 +1250,11 @@ func rankingOrderText(rk ModelRanking) string {
 	case rk.Better > 0 && rk.Worse > 0:
 		return ", so their order depends on the extent"
 	case rk.Better > 0 && rk.Worse == 0:
+		if len(rk.Diffs) > rk.Extents {
+			// As "held on every extent compared": the extents not
+			// compared tell nothing of the order.
+			return ", so their order did not reverse beyond noise on any extent compared"
+		}
 		return ", so their order did not reverse beyond noise on any extent"
 	}
 	return ""
@@ -1343,4 +1383,12 @@ func upperFirst(s string) string {
 		return string(s[0]-'a'+'A') + s[1:]
 	}
 	return s
+}
+
+// pick returns a when c holds, else b: a word chosen by a count.
+func pick(c bool, a, b string) string {
+	if c {
+		return a
+	}
+	return b
 }

@@ -464,8 +464,8 @@ func TestReplyRobustNamesTheTolerance(t *testing.T) {
 		tol           float64
 		want, notWant string
 	}{
-		{0.3, "Within the tolerance of ±0.3 set for this run, the AUC did not depend on which of these extents it was computed on.", "our tolerance"},
-		{DefaultToleranceAUC, "Within our tolerance of ±0.02, the AUC did not depend on which of these extents it was computed on.", "set for this run"},
+		{0.3, "The AUC moved by less than the tolerance of ±0.3 set for this run between these extents: every 95% interval of its differences lies within it.", "our tolerance"},
+		{DefaultToleranceAUC, "The AUC moved by less than our tolerance of ±0.02 between these extents: every 95% interval of its differences lies within it.", "set for this run"},
 	} {
 		s := &Sensitivity{ScoredExtents: []string{"base", "hull"}, Verdicts: []Verdict{{Metric: "auc", Verdict: JudgementRobust, Tolerance: c.tol}}}
 		checkWords(t, "reply", aucAnswer(s), []string{c.want}, []string{c.notWant})

@@ -432,7 +432,8 @@ func TestMethodsTextSituations(t *testing.T) {
 				// AUC is extent-sensitive for each of the sample's models,
 				// the predicted area for some (TestReplySensitiveForEvery).
 				"AUC and AUC (cells unweighted) moved with the extent by more than the tolerance for every model.",
-				"Predicted area at minimum training presence moved with the extent by more than the tolerance for at least one model.",
+				// Named: "for at least one model" hid truncated, robust.
+				"Predicted area at minimum training presence moved with the extent by more than the tolerance for good and broad and stayed within it for truncated.",
 				// The partial ROC ratio's differences between extents are
 				// described, not judged (partialROCExtentCoverage): said
 				// with the tolerances, not among the undetermined.
@@ -464,7 +465,7 @@ func TestMethodsTextSituations(t *testing.T) {
 			notWant: []string{"slope of AUC"}},
 		{name: "one extent",
 			build: func(r *Results) { onlyExtents(r, "base") },
-			want: []string{"Only one evaluation extent, base (40,600 km², 21 test points), could be scored, so no score can be compared across extents; AUC there: good 0.830,",
+			want: []string{"Only one evaluation extent, base (40,600 km², 21 test points), could be scored (the other 9 extents: region_b50, region_b100, region_b200 and 6 more: the extent has no valid cells), so no score can be compared across extents; AUC there: good 0.830,",
 				"AUC of good was 0.830 on its one scored extent, base (SE 0.046 from the test records)", "on 1 evaluation extent (base, 40,600 km²)",
 				"With one extent, no score can be compared across extents."},
 			notWant: []string{"1 extents", "Across 1", "ranged 0.830–0.830", "too few"}},
@@ -1243,7 +1244,7 @@ func TestSingleModelText(t *testing.T) {
 	r.Rings = rs
 	analyzed(t, r)
 	checkWords(t, "methods", methodsText(r),
-		[]string{"moved with the extent by more than the tolerance for good.", "stayed within the tolerance for good (an omission rate by construction:",
+		[]string{"moved with the extent by more than the tolerance for good.", "stayed within the tolerance for good, as omission rates must:",
 			"Differences between extents of one model, and between a model and a null on one extent, were taken",
 			"We therefore report every score together with the extent it was computed on and treat the values"},
 		[]string{"at least one model", "for every model", "between models on one extent", "compare models only within one extent"})
@@ -2072,7 +2073,8 @@ func TestRankingOrderNotCompared(t *testing.T) {
 		{"demo, base holding no test points", 9, 9, 0, 10, ", so their order held on every extent compared"},
 		{"demo, every extent compared", 13, 13, 0, 13, ", so their order held on every extent"},
 		{"worse everywhere compared, one not", 4, 0, 4, 5, ", so their order held on every extent compared"},
-		{"better on some, one not compared", 9, 5, 0, 10, ", so their order did not reverse beyond noise on any extent"},
+		{"better on some, one not compared", 9, 5, 0, 10, ", so their order did not reverse beyond noise on any extent compared"},
+		{"better on some, every extent compared", 9, 5, 0, 9, ", so their order did not reverse beyond noise on any extent"},
 		{"one extent compared, better there", 1, 1, 0, 1, ""},
 		{"one extent compared of two", 1, 1, 0, 2, ""},
 	}
@@ -2347,4 +2349,45 @@ func TestRandomTestAbsentInOldFile(t *testing.T) {
 	checkWords(t, "methods, new file", methodsText(r), given, []string{none})
 	_, page = writtenPage(t, r)
 	checkWords(t, "table note, new file", page, tableGiven, []string{none})
+}
+
+// TestDescribedSomeTooFew: a described score whose differences rest in
+// part on too few common test points says how many of how many: "for rev
+// 0 of 7 (...; 1 of them on too few ...)" left "them" naming nothing
+// (sentence audit of 2026-12-05).
+func TestDescribedSomeTooFew(t *testing.T) {
+	mv := ModelVerdict{Model: "rev", Tolerance: 0.05, baseScored: true, BaseDefined: true, Largest: 0,
+		Diffs: []ExtentDifference{
+			{Extent: "a", Defined: true, Diff: -0.01, CommonPoints: 40, Position: positionNotCalibrated},
+			{Extent: "b", Defined: true, Diff: 0.004, CommonPoints: 20, Position: positionTooFew},
+			{Extent: "c", Defined: true, Diff: 0.002, CommonPoints: 40, Position: positionNotCalibrated},
+		}}
+	parts, _, _ := describedModels("base", []ModelVerdict{mv})
+	if len(parts) != 1 {
+		t.Fatalf("parts %q", parts)
+	}
+	checkWords(t, "described", parts[0], []string{"for rev 0 of 3 differences from base lie beyond ±0.05 (the largest -0.010 on a; 1 of the 3 differences on too few common test points to be read)"}, []string{"of them"})
+}
+
+// TestOneExtentHeadlineSaysWhy: with one extent scored, the headline says
+// why the others are not (duplicates of it here) and names a model
+// scored nowhere; "could be scored" alone read as a failure, and the
+// constant model was dropped without a word (sentence audit of
+// 2026-12-05).
+func TestOneExtentHeadlineSaysWhy(t *testing.T) {
+	r := loadSample(t)
+	onlyExtents(r, "base")
+	for i := range r.Extents {
+		if r.Extents[i].ID != "base" {
+			r.Extents[i].Status, r.Extents[i].DuplicateOf = vocab.StatusDuplicate, "base"
+		}
+	}
+	for i := range r.Scores {
+		if r.Scores[i].Model == "broad" {
+			r.Scores[i].Scored, r.Scores[i].NotScored = false, "model has one value on every cell with data"
+		}
+	}
+	s := analyzed(t, r)
+	checkWords(t, "headline", s.Headline, []string{"could be scored (the other 9 extents: region_b50, region_b100, region_b200 and 6 more: the same cells as base), so no score",
+		"; broad is not scored (model has one value on every cell with data)."}, []string{"broad 0."})
 }

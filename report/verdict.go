@@ -355,7 +355,9 @@ func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
 
 // omissionByConstruction says why an omission rate's paired difference
 // between extents is 0 whatever the data: its "robust" is not evidence.
-const omissionByConstruction = "the threshold comes from the training points, so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
+// A fixed threshold (--thresholds) does not come from the training
+// points ("comes from the training points" was said of it too).
+const omissionByConstruction = "the threshold does not depend on the extent (it comes from the training points, or is fixed), so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
 
 // describedText describes, without judging, the Boyce index or the
 // partial ROC ratio m of a model (name: "Boyce index of M") across

@@ -267,6 +267,10 @@
 #     not "the partial ROC ratio at E = 0.05 of good", and one that could
 #     not be formed says which side is undefined there and why; no number
 #     changed, scores.csv unchanged).
+#   - rewritten again in session 17 (the robust omission verdicts say the
+#     threshold does not depend on the extent, being from the training
+#     points or fixed, not that it comes from the training points; no
+#     number changed, scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
