@@ -77,16 +77,27 @@ func (s *Sensitivity) findModelVerdict(key, model string) *ModelVerdict {
 // ...)" for a model verdict.
 func verdictPhrase(mv *ModelVerdict) string {
 	if mv.Largest < 0 {
+		// With no difference formed, a verdict word misleads: a score
+		// that is described, never judged, "was undetermined", and one
+		// with no second extent was "undetermined" for want of anything
+		// to compare (sentence audit of 2026-12-05).
+		word := string(mv.Verdict)
+		switch {
+		case NotCalibrated(mv.Metric, PairedKindExtent):
+			word = "not described"
+		case len(mv.Diffs) == 0 && mv.baseScored:
+			word = "not compared across extents"
+		}
 		switch {
 		case len(mv.Diffs) == 0 && !mv.BaseDefined && mv.baseScored:
 			// Scored there, but this metric is undefined on it.
-			return string(mv.Verdict) + " (undefined on " + mv.Base + ", its only scored extent)"
+			return word + " (undefined on " + mv.Base + ", its only scored extent)"
 		case len(mv.Diffs) == 0 && !mv.BaseDefined:
-			return string(mv.Verdict) + " (not scored on " + mv.Base + ")"
+			return word + " (not scored on " + mv.Base + ")"
 		case len(mv.Diffs) == 0:
-			return string(mv.Verdict) + " (scored on " + mv.Base + " only)"
+			return word + " (scored on " + mv.Base + " only)"
 		case !mv.BaseDefined:
-			return string(mv.Verdict) + " (undefined on " + mv.Base + ")"
+			return word + " (undefined on " + mv.Base + ")"
 		}
 		if n, ok := mv.fewCommon(); ok {
 			return fmt.Sprintf("%s (no difference could be formed: %s shares at most %d test point%s with any other extent)", mv.Verdict, mv.Base, n, Plural(n))

@@ -165,12 +165,20 @@ type notedTable struct {
 // badge is a verdict with its badge style and sentence.
 type badge struct {
 	Class    string
-	Verdict  Judgement
+	Verdict  string
 	Sentence string
 }
 
-func verdictBadge(verdict Judgement, sentence string) badge {
-	return badge{Class: verdictClass(verdict), Verdict: verdict, Sentence: sentence}
+// verdictBadge is the badge of metric's verdict: "described" for a score
+// described, never judged (NotCalibrated between extents), whose
+// verdict field is undetermined for want of a test: an "undetermined"
+// badge beside "described, not judged" read as a judgement that could
+// not be reached (sentence audit of 2026-12-05).
+func verdictBadge(metric string, verdict Judgement, sentence string) badge {
+	if NotCalibrated(metric, PairedKindExtent) {
+		return badge{Class: "described", Verdict: "described", Sentence: sentence}
+	}
+	return badge{Class: verdictClass(verdict), Verdict: string(verdict), Sentence: sentence}
 }
 
 // figureView is one figure of the page.
@@ -265,7 +273,7 @@ func newPageView(r *Results, figs []renderedFigure, methods methodsDoc, svg func
 		Data:             template.JS(data),
 	}
 	for _, vd := range s.Verdicts {
-		v.Verdicts = append(v.Verdicts, verdictBadge(vd.Verdict, vd.Sentence))
+		v.Verdicts = append(v.Verdicts, verdictBadge(vd.Metric, vd.Verdict, vd.Sentence))
 	}
 	if head, rows := aboveNullSummary(r); len(rows) > 0 {
 		tb := table("tbl-above-null-summary", head, rows)

@@ -147,7 +147,7 @@ func differencesSection(s *Sensitivity, label map[string]string) ([]badge, htmlT
 	var badges []badge
 	var rows [][]cell
 	for _, mv := range s.ModelVerdicts {
-		badges = append(badges, verdictBadge(mv.Verdict, mv.Sentence))
+		badges = append(badges, verdictBadge(mv.Metric, mv.Verdict, mv.Sentence))
 		for _, d := range mv.Diffs {
 			row := []cell{tc(label[mv.Metric]), tc(mv.Model), tc(d.Extent), ic(d.TestPoints), ic(d.CommonPoints)}
 			if !d.Defined {

@@ -92,12 +92,14 @@ func TestUndefinedOnItsOnlyExtent(t *testing.T) {
 		want, notWant []string
 	}{
 		{"undefined there", "good",
-			[]string{"undetermined (undefined on base, its only scored extent)",
+			// A described score "was not described", not "undetermined"
+			// (sentence audit of 2026-12-05).
+			[]string{"not described (undefined on base, its only scored extent)",
 				"undefined on the base extent base (the 1 - E crossing falls among test points tied at one value), the only extent it is scored on, so there is nothing to compare."},
-			[]string{"not scored on base", "scored on the base extent base only"}},
+			[]string{"not scored on base", "scored on the base extent base only", "undetermined ("}},
 		{"defined there", "broad",
-			[]string{"undetermined (scored on base only)", "scored on the base extent base only, so there is nothing to compare."},
-			[]string{"undefined on"}},
+			[]string{"not described (scored on base only)", "scored on the base extent base only, so there is nothing to compare."},
+			[]string{"undefined on", "undetermined ("}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
