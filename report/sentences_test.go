@@ -1313,10 +1313,10 @@ func TestVerdictMultiplicity(t *testing.T) {
 	checkWords(t, "page", string(page), []string{"The intervals are per extent, not adjusted for the number of extents"}, nil)
 }
 
-// TestModelSameAsNull: a model whose every paired difference from a null,
-// and its interval, is 0 (a copy of the null) "is the same as" the null;
-// "not above beyond noise" and a gap "moving" from +0.000 to +0.000
-// would speak of noise and movement where there is none.
+// TestModelSameAsNull: a model whose every paired difference from a null
+// is 0 (a copy of the null) "is the same as" the null; "not above beyond
+// noise" and a gap "moving" from +0.000 to +0.000 would speak of noise
+// and movement where there is none. No interval is quoted for it.
 func TestModelSameAsNull(t *testing.T) {
 	r := withNull(t)
 	ps := nullPaired(r)
@@ -1329,14 +1329,66 @@ func TestModelSameAsNull(t *testing.T) {
 		if an.Metric != "auc" || an.Model != "good" {
 			continue
 		}
-		notWant := []string{"not above", "moves from", "runs from", "within noise"}
-		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null): the difference and its 95% interval are 0 (0.800 against 0.800).",
-			"are 0 on every one."}, notWant)
-		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (AUC difference and its 95% interval 0); the gap is 0 on every extent"}, notWant)
-		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName + " (difference and interval 0)"}, []string{"not above"})
+		notWant := []string{"not above", "moves from", "runs from", "within noise", "interval"}
+		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null) on their 21 common test points (0.800 against 0.800): every test point's placement is the same, so there is no gap to judge against noise.",
+			"Across 8 extents it is the same on every one (every paired difference 0)."}, notWant)
+		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (every paired AUC difference 0, on 21 common test points); the gap is 0 on every extent"}, notWant[:4])
+		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName}, []string{"not above"})
 		return
 	}
 	t.Fatal("no AUC comparison of good with the null")
+}
+
+// TestModelSameAsNullFewPoints: a model the same as a null on fewer
+// common test points than a difference is judged on (the partial ROC
+// ratio's 30 at E = 0.05; AUC's 10) is the same, as its AUC on more
+// points is: the audit's model written from the distance-only null read
+// "+0.000 (1.037 against 1.037) on 12 common test points, fewer than the
+// 30 we judge a difference on: whether it beats the null is not told",
+// then "the difference and its interval are 0 on every one", and
+// results.json read too_few where AUC read the same. There is no noise
+// to judge an exact 0 against, whatever the number of points.
+func TestModelSameAsNullFewPoints(t *testing.T) {
+	key := MetricKeyPartialROC(0.05)
+	for _, c := range []struct {
+		metric, method string
+		m              MetricInfo
+		points         int
+		want           string
+	}{
+		{key, "paired_resamples", MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}, 12,
+			"On base, the partial ROC ratio of dn at E = 0.05 is the same as that of dcopy (null) on their 12 common test points (1.037 against 1.037): the difference is 0 on them and on every paired resample, so there is no gap to judge against noise."},
+		{"auc", "placements", MetricInfo{Key: "auc", Kind: MetricAUC, Label: "AUC"}, 6,
+			"On base, AUC of dn is the same as that of dcopy (null) on their 6 common test points (1.037 against 1.037): every test point's placement is the same, so there is no gap to judge against noise."},
+	} {
+		var ps []Paired
+		for _, ext := range []string{"base", "hull"} {
+			ps = append(ps, Paired{Metric: c.metric, Kind: PairedKindNull, Model: "dn", Extent: ext, OtherModel: "dcopy", OtherExtent: ext,
+				CommonPoints: c.points, Method: c.method, Defined: true, A: 1.037, B: 1.037, SE: Float(0), Low: Float(0), High: Float(0), Resamples: 200})
+		}
+		if ps[0].Judged() {
+			t.Fatalf("%s: %d common points should be below the cut-off", c.metric, c.points)
+		}
+		a := &analysis{r: &Results{Models: []Model{{Name: "dn"}, {Name: "dcopy", Role: RoleNull, NullKind: "raster"}}, Paired: ps},
+			metrics: []MetricInfo{c.m}, models: []string{"dn"}, base: "base", paired: map[pairedKey]int{}, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
+		for i, p := range ps {
+			a.paired[pairedKey{p.Metric, p.Kind, p.Model, p.Extent, p.OtherModel, p.OtherExtent}] = i
+		}
+		ans := a.aboveNull([]string{"base", "hull"})
+		if len(ans) != 1 {
+			t.Fatalf("%s: %d comparisons, want 1", c.metric, len(ans))
+		}
+		an := ans[0]
+		if an.BaseReading != ReadingNotAbove || an.NotAbove != 2 || an.Gaps[0].NotJudged != "" || an.Gaps[1].Reading != ReadingNotAbove {
+			t.Errorf("%s: reading %q, not above %d, not judged %q, on hull %q; want not_above on both extents, read",
+				c.metric, an.BaseReading, an.NotAbove, an.Gaps[0].NotJudged, an.Gaps[1].Reading)
+		}
+		checkWords(t, c.metric, an.Sentence, []string{c.want, "Across 2 extents it is the same on every one (every paired difference 0)."},
+			[]string{"not told", "interval", "fewer than"})
+		if w := readingWords(c.m.Kind, &an.Gaps[0]); w != "the same (every paired difference 0)" {
+			t.Errorf("%s: table reads %q", c.metric, w)
+		}
+	}
 }
 
 // TestKendallWUndefinedSaysWhy: when every extent ties every model, the
