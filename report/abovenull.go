@@ -632,10 +632,18 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // their reading on the base extent (above, within noise, below, not
 // told), each named under Analysis.
 func aboveNullCounts(gaps []baseGap) string {
-	var above, within, below, untold, noSkill int
+	var above, within, same, below, untold, noSkill int
 	atOrBelow, notShown := false, false
 	for _, bg := range gaps {
 		switch bg.an.BaseReading {
+		case ReadingNotAbove:
+			if bg.g.zero() {
+				// A copy of the null: counted "within noise" it read as
+				// noise where the methods say "the same".
+				same++
+			} else {
+				within++
+			}
 		case ReadingAbove:
 			above++
 			if aboveWithoutSkill(MetricAUC, bg.g) {
@@ -658,6 +666,11 @@ func aboveNullCounts(gaps []baseGap) string {
 	}
 	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d and below in %d",
 		gaps[0].an.BaseExtent, len(gaps), above, skill, within, below)
+	if same > 0 {
+		// A pair the same as its null is no noise: counted apart.
+		out = fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d, below in %d and the same (every paired difference 0) in %d",
+			gaps[0].an.BaseExtent, len(gaps), above, skill, within, below, same)
+	}
 	if untold > 0 {
 		out += fmt.Sprintf(", not told in %d (too few common test points or resamples, our cut-offs)", untold)
 	}

@@ -1391,6 +1391,23 @@ func TestModelSameAsNullFewPoints(t *testing.T) {
 	}
 }
 
+// TestHeadlineCountsSame: past maxHeadlinePairs the headline counts the
+// pairs where the model is the same as the null apart from those within
+// noise: "within noise in 8" of the audit counted two copies of a null as
+// noise while the methods called them the same.
+func TestHeadlineCountsSame(t *testing.T) {
+	var gaps []baseGap
+	for i := range 8 {
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, NullValue: 0.58, Diff: 0.02, SE: 0.05, Low: -0.08, High: 0.12, Reading: ReadingNotAbove}
+		if i < 2 {
+			g.NullValue, g.Diff, g.SE, g.Low, g.High = 0.6, 0, 0, 0, 0
+		}
+		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: ReadingNotAbove}, g})
+	}
+	checkWords(t, "counts", aboveNullCounts(gaps),
+		[]string{"of the 8 pairs of a model and a null, the model is above the null beyond noise (AUC) in 0, within noise in 6, below in 0 and the same (every paired difference 0) in 2 (each pair"}, []string{"within noise in 8"})
+}
+
 // TestKendallWUndefinedSaysWhy: when every extent ties every model, the
 // table shows no Kendall's W; the sentence says why instead of leaving it
 // out silently.
@@ -2288,7 +2305,8 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 		if vs != "" {
 			reading = ReadingAbove
 		}
-		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Reading: reading, ModelVsRandom: vs}
+		// Within noise: an interval around 0, not 0 itself (the same).
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Diff: 0.01, SE: 0.03, Low: -0.05, High: 0.07, Reading: reading, ModelVsRandom: vs}
 		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: reading}, g})
 	}
 	checkWords(t, "counts", aboveNullCounts(gaps),
