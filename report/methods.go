@@ -316,7 +316,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 		b.WriteString("\n\n")
 		return
 	}
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample%s; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer%s; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, crossingNote(st), fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
 	b.WriteString(partialROCNotJudged(s, st))

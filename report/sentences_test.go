@@ -426,7 +426,7 @@ func TestMethodsTextSituations(t *testing.T) {
 				// judged against (TestToleranceListsJudgedOnly).
 				"tolerances we chose (AUC ±0.02, omission rate and predicted area ±0.05; areasweep's defaults, not a published standard)",
 				"The Boyce index's differences were described, not judged",
-				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged, and the intervals were not adjusted",
+				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
 				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
 				// AUC is extent-sensitive for each of the sample's models,
@@ -1069,13 +1069,15 @@ func TestNullGapEndsNamed(t *testing.T) {
 
 // TestTooFewAllZero: a verdict left undetermined by differences on too
 // few test points, every difference being 0, does not name one extent's
-// "+0.000" as the largest.
+// "+0.000" as the largest. (AUC: an omission rate's differences between
+// extents, 0 by construction, are judged on any number of points,
+// TestOmissionZeroJudgedOnFewPoints.)
 func TestTooFewAllZero(t *testing.T) {
 	r := liftResampled(loadSample(t))
-	const metric = "omission_minimum_training_presence"
+	const metric = "auc"
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Diff, p.Low, p.High = 0, Float(0), Float(0)
+			p.Diff, p.SE, p.Low, p.High = 0, Float(0), Float(0), Float(0)
 		}
 	}
 	if setPaired(r, metric, PairedKindExtent, "good", "hull", func(p *Paired) { p.CommonPoints = 6 }) != 1 {
@@ -1519,7 +1521,7 @@ func TestTenPointCutoffOurs(t *testing.T) {
 			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off). This describes the family of extents; it is not a test."}, []string{") ("})
 		}
 	}
-	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent) was not judged"}, nil)
 	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)

@@ -267,6 +267,12 @@
 #     not "the partial ROC ratio at E = 0.05 of good", and one that could
 #     not be formed says which side is undefined there and why; no number
 #     changed, scores.csv unchanged).
+#   - rewritten on 2026-12-05, branch hnull (an omission rate's difference
+#     between extents, 0 by construction, is judged on any number of
+#     common test points, and the by-construction clause of its verdict
+#     reads "the threshold comes from the training points, whatever the
+#     extent" ("is fixed" for a fixed threshold): four verdict sentences
+#     in results.json changed; no number changed, scores.csv unchanged).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"
