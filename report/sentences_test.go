@@ -428,7 +428,7 @@ func TestMethodsTextSituations(t *testing.T) {
 				"The Boyce index's differences were described, not judged",
 				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
-				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
+				"(seeded from the run seed 20240611 with the extent's name, not the model's; p is not resolved below 1/200)",
 				// AUC is extent-sensitive for each of the sample's models,
 				// the predicted area for some (TestReplySensitiveForEvery).
 				"AUC and AUC (cells unweighted) moved with the extent by more than the tolerance for every model.",
