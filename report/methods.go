@@ -657,12 +657,14 @@ func randomTestCount(r *Results, model string, e float64) string {
 		return fmt.Sprintf(", and it was not tested against %s: at most %d draw%s formed a ratio on an extent, fewer than the %d (our cut-off) from which a p-value can fall below %s", random, most, Plural(most), MinRandomDraws, fmtG(randomPCutoff))
 	case tested == 0:
 		return ""
+	case tested == 1 && above == 0:
+		// "not above ... (one-sided p below 0.025)" read as if p was below.
+		return fmt.Sprintf(", and not above %s on the one extent where it was tested (its one-sided p is not below %s, our cut-off)", random, fmtG(randomPCutoff))
 	case tested == 1:
-		verb := "above"
-		if above == 0 {
-			verb = "not above"
-		}
-		return fmt.Sprintf(", and %s %s on the one extent where it was tested (one-sided p below %s, our cut-off)", verb, random, fmtG(randomPCutoff))
+		return fmt.Sprintf(", and above %s on the one extent where it was tested (one-sided p below %s, our cut-off)", random, fmtG(randomPCutoff))
+	case above == 0:
+		return fmt.Sprintf(", and above %s on none of the %d extents where it was tested (on none is the one-sided p below %s, our cut-off; each extent tested on its own, not adjusted for their number)",
+			random, tested, fmtG(randomPCutoff))
 	}
 	return fmt.Sprintf(", and above %s on %d of the %d extents where it was tested (one-sided p below %s, our cut-off; each extent tested on its own, not adjusted for their number)",
 		random, above, tested, fmtG(randomPCutoff))

@@ -2384,6 +2384,16 @@ func TestPublishedPCaution(t *testing.T) {
 	}
 	r.Scores[second].PartialROC[0].PRandom, r.Scores[second].PartialROC[0].RandomFormed = 0.3, 200
 	checkWords(t, "methods results", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on 1 of the 2 extents where it was tested (one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"}, nil)
+	// Not above on every extent tested: the cut-off is not said as if p
+	// was below it ("not above ... (one-sided p below 0.025, our cut-off)"
+	// and "on 0 of the 2 extents ... (one-sided p below 0.025)" read so).
+	r.Scores[0].PartialROC[0].PRandom = 0.2
+	checkWords(t, "methods results, none above", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on none of the 2 extents where it was tested (on none is the one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"},
+		[]string{"on 0 of the 2 extents"})
+	r.Scores[second].PartialROC[0].RandomFormed = 39
+	checkWords(t, "methods results, one not above", methodsText(r), []string{"and not above that of as many test records drawn at random over the extent's area on the one extent where it was tested (its one-sided p is not below 0.025, our cut-off)"},
+		[]string{"where it was tested (one-sided p below"})
+	r.Scores[0].PartialROC[0].PRandom, r.Scores[second].PartialROC[0].RandomFormed = 0.0123, 200
 	// A p from fewer than 40 formed draws is not read: 1/(1+d) is not
 	// below 0.025 for d < 40, so it could not tell the model above random
 	// (helper audit of 2026-12-05: "on 0 of the 13 extents where it was
