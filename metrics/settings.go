@@ -32,7 +32,9 @@ type Settings struct {
 	// Fraction is the share of test presences drawn, with replacement, in
 	// each resample, in (0,1] (0 means 0.5).
 	Fraction float64
-	// Seed seeds the bootstrap. The caller derives one per model x extent.
+	// Seed seeds the published bootstrap and the area-random draws of one
+	// Score. The caller derives one per extent from the run seed (not per
+	// model: identical predictions get identical draws).
 	Seed uint64
 	// FixedThresholds are user thresholds scored beside the training
 	// presence thresholds. Each must also be passed to NewLayout so that the

@@ -174,8 +174,8 @@ func pointOnlyClause(k MetricKind, label string, g *NullGap) string {
 func readingWords(k MetricKind, g *NullGap) string {
 	if g.Reading == ReadingNotAbove && g.zero() {
 		// A copy of the null: "not above" would suggest noise where the
-		// sentences say "the same" (every placement equal).
-		return "the same (difference and interval 0)"
+		// sentences say "the same" (every paired difference 0).
+		return "the same (every paired difference 0)"
 	}
 	w := strings.ReplaceAll(g.Reading, "_", " ")
 	if aboveWithoutSkill(k, g) {
@@ -282,7 +282,14 @@ func (a *analysis) aboveNull(ids []string) []AboveNull {
 						g.ModelValue, g.NullValue, g.Diff, g.SE, g.Low, g.High = p.A, p.B, p.Diff, se, lo, hi
 						g.Reading = gapReading(lo, hi)
 						a.setModelVsRandom(m.Kind, m.Key, model, n.Name, &g)
-						if k := p.notJudgedKind(); k != "" {
+						if k := p.notJudgedKind(); k != "" && !(g.zero() && (p.Method != "paired_resamples" || p.Formed() > 0)) {
+							// A model the same as the null on the common
+							// points (every paired difference 0) is read
+							// whatever their number: the cut-offs guard
+							// intervals that under-cover on few points,
+							// and there is no noise here to cover. It was
+							// "not told" for the partial ROC ratio on 12
+							// points while its AUC read "the same".
 							g.Reading, g.NotJudged = k, p.NotJudgedReason()
 						}
 						an.Defined++
@@ -350,8 +357,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 	case !notJudgedPosition(an.BaseReading) && g.zero():
 		// A copy of the null: "not above beyond noise" would suggest
 		// noise where there is none.
-		fmt.Fprintf(&b, "On %s, %s is the same as that of %s: the difference and its 95%% interval are 0 (%s).", an.BaseExtent, scoreOf, null,
-			against)
+		fmt.Fprintf(&b, "On %s, %s is the same as that of %s %s.", an.BaseExtent, scoreOf, null, sameText(g))
 	case an.BaseReading == ReadingTooFew:
 		fmt.Fprintf(&b, "On %s, %s minus %s is %s (%s) on %d common test point%s, fewer than the %d we judge a difference on (our cut-off): whether it beats the null is not told.",
 			an.BaseExtent, scoreOf, null, signedSmall(g.Diff), f3(g.ModelValue)+" against "+f3(g.NullValue), g.CommonPoints, Plural(g.CommonPoints), m.minCommonPoints(PairedKindNull))
@@ -377,7 +383,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			signedSmall(g.Diff), against, signedVs(g.Low, 0), signedVs(g.High, 0))
 	}
 	if an.Defined >= 2 && an.allZero() {
-		fmt.Fprintf(&b, " Across %d extents the difference and its interval are 0 on every one.", an.Defined)
+		fmt.Fprintf(&b, " Across %d extents it is the same on every one (every paired difference 0).", an.Defined)
 		return b.String()
 	}
 	if an.Defined >= 2 && an.SmallestExtent != an.LargestExtent {
@@ -391,7 +397,7 @@ func aboveNullSentence(r *Results, m MetricInfo, an *AboveNull) string {
 			notTold += fmt.Sprintf(", and not told on %d with fewer than %d formed resamples (our cut-off)", kb, MinPercentileResamples)
 		}
 		small, large := an.gapEnds()
-		counts := fmt.Sprintf("the model is above the null beyond noise on %d%s, within noise on %d and below on %d%s", an.Above, an.noSkillCount(m.Kind), an.NotAbove, an.Below, notTold)
+		counts := fmt.Sprintf("the model is above the null beyond noise on %d%s, %s and below on %d%s", an.Above, an.noSkillCount(m.Kind), an.withinSame(), an.Below, notTold)
 		switch {
 		case an.Above+an.NotAbove+an.Below > 0:
 		case kb == 0:
@@ -486,8 +492,51 @@ func (g *NullGap) why() string {
 	return notJudgedReason(g.Reading, "", g.CommonPoints, g.nFormed, minCommonPoints(g.Method, PairedKindNull, ""))
 }
 
-// zero reports whether the gap and both ends of its interval are 0.
-func (g *NullGap) zero() bool { return g.Defined && g.Diff == 0 && g.Low == 0 && g.High == 0 }
+// zero reports whether every paired difference of g is 0: the
+// difference, its SE and both ends of its interval (an SE of 0 means every
+// placement difference, or every paired resample's difference, equals the
+// difference, 0). The model then scores as the null does on the common
+// test points: "the same", whatever their number (aboveNull).
+func (g *NullGap) zero() bool {
+	return g.Defined && g.Diff == 0 && g.SE == 0 && g.Low == 0 && g.High == 0
+}
+
+// sameText says that the model scores as the null does on g's common
+// test points, and why there is nothing to judge: each test point's
+// placement is the same (AUC), or the difference is 0 on the common points
+// and on each paired resample. No interval is quoted: on fewer common
+// points than a difference is judged on, none would be read.
+func sameText(g *NullGap) string {
+	on := fmt.Sprintf("on their %d common test point%s (%s against %s)", g.CommonPoints, Plural(g.CommonPoints), f3(g.ModelValue), f3(g.NullValue))
+	if g.Method == "placements" {
+		return on + ": every test point's placement is the same, so there is no gap to judge against noise"
+	}
+	return on + ": the difference is 0 on them and on every paired resample, so there is no gap to judge against noise"
+}
+
+// withinSame is "within noise on 3", or with extents where the model is
+// the same as the null, "within noise on 1, the same on 2": counted
+// within noise, a copy of the null read as noise where there is none.
+func (an *AboveNull) withinSame() string {
+	k := an.sameCount()
+	if k == 0 {
+		return fmt.Sprintf("within noise on %d", an.NotAbove)
+	}
+	return fmt.Sprintf("within noise on %d, the same on %d", an.NotAbove-k, k)
+}
+
+// sameCount counts the gaps of an read "not_above" that are 0 (zero):
+// the extents where the model is the same as the null, counted apart
+// from those within noise.
+func (an *AboveNull) sameCount() int {
+	n := 0
+	for i := range an.Gaps {
+		if g := &an.Gaps[i]; g.Reading == ReadingNotAbove && g.zero() {
+			n++
+		}
+	}
+	return n
+}
 
 // allZero reports whether every defined gap of an is 0 with its interval
 // (the model scores as the null does on every extent).
@@ -583,10 +632,18 @@ func (s *Sensitivity) baseAUCGaps() []baseGap {
 // their reading on the base extent (above, within noise, below, not
 // told), each named under Analysis.
 func aboveNullCounts(gaps []baseGap) string {
-	var above, within, below, untold, noSkill int
+	var above, within, same, below, untold, noSkill int
 	atOrBelow, notShown := false, false
 	for _, bg := range gaps {
 		switch bg.an.BaseReading {
+		case ReadingNotAbove:
+			if bg.g.zero() {
+				// A copy of the null: counted "within noise" it read as
+				// noise where the methods say "the same".
+				same++
+			} else {
+				within++
+			}
 		case ReadingAbove:
 			above++
 			if aboveWithoutSkill(MetricAUC, bg.g) {
@@ -609,6 +666,11 @@ func aboveNullCounts(gaps []baseGap) string {
 	}
 	out := fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d and below in %d",
 		gaps[0].an.BaseExtent, len(gaps), above, skill, within, below)
+	if same > 0 {
+		// A pair the same as its null is no noise: counted apart.
+		out = fmt.Sprintf(" Against the nulls, on %s: of the %d pairs of a model and a null, the model is above the null beyond noise (AUC) in %d%s, within noise in %d, below in %d and the same (every paired difference 0) in %d",
+			gaps[0].an.BaseExtent, len(gaps), above, skill, within, below, same)
+	}
 	if untold > 0 {
 		out += fmt.Sprintf(", not told in %d (too few common test points or resamples, our cut-offs)", untold)
 	}
@@ -642,7 +704,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 			part += " but " + noSkillClause(MetricAUC, "AUC", g)
 		}
 		if !notJudgedPosition(an.BaseReading) && g.zero() {
-			part = fmt.Sprintf("%s scores the same as %s on %s (AUC difference and its 95%% interval 0)", an.Model, an.Null, an.BaseExtent)
+			part = fmt.Sprintf("%s scores the same as %s on %s (every paired AUC difference 0, on %d common test point%s)", an.Model, an.Null, an.BaseExtent, g.CommonPoints, Plural(g.CommonPoints))
 		}
 		if an.BaseReading == ReadingTooFew {
 			part = fmt.Sprintf("whether %s beats %s on %s is not told (AUC difference %s on %d test point%s, fewer than our %d)", an.Model, an.Null, an.BaseExtent,
@@ -664,7 +726,7 @@ func aboveNullHeadline(s *Sensitivity) string {
 			// How many extents put the model above and below the null:
 			// the ends alone can hide that it is below on most.
 			if read := an.Above + an.NotAbove + an.Below; read > 0 {
-				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read%s, within noise on %d and below on %d", an.Model, an.Above, read, Plural(read), an.noSkillCount(MetricAUC), an.NotAbove, an.Below)
+				part += fmt.Sprintf("; %s is above it beyond noise on %d of the %d extent%s read%s, %s and below on %d", an.Model, an.Above, read, Plural(read), an.noSkillCount(MetricAUC), an.withinSame(), an.Below)
 			}
 		}
 		parts = append(parts, part)
@@ -754,7 +816,7 @@ var aboveNullNote = "Model minus null on each extent, on the test points both sc
 	"(Student t 95% interval, n − 1 degrees of freedom), the partial ROC ratio from the shared full-size paired resamples (percentile interval). " +
 	"\"above\": the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\", or 1 for the partial ROC ratio, where the model's own score is no better than a random ranking, " +
 	"and by \"model not shown above 0.5, random: no sign of skill\" where it is better but its own 95% interval reaches 0.5, or 1); " +
-	"\"not above\": it includes 0; \"below\": it lies wholly below 0; \"the same\": the difference and its interval are 0 (a copy of the null); " +
+	"\"not above\": it includes 0; \"below\": it lies wholly below 0; \"the same\": every paired difference is 0 (a copy of the null), read whatever the number of common test points; " +
 	fmt.Sprintf("\"not judged\": fewer than %d common test points (%d for the partial ROC ratio), or an interval from fewer than %d formed resamples; the difference is shown, its interval is not read (our cut-offs). ",
 		MinPairedPoints, MinResampledPoints, MinPercentileResamples) +
 	"Each row is a test of one difference against 0, not adjusted for the number of extents; how the gap changes from extent to extent is a description."
@@ -762,7 +824,7 @@ var aboveNullNote = "Model minus null on each extent, on the test points both sc
 // aboveNullSummaryNote explains the summary table.
 const aboveNullSummaryNote = "AUC of each model minus that of each null on the test points both score, with its 95% interval " +
 	"from the per-point placements: \"above\" when the interval lies wholly above 0 (followed by \"model at or below 0.5, random: no sign of skill\" where the model's own AUC is no better than a random ranking, and by \"model not shown above 0.5, random: no sign of skill\" where its own 95% interval reaches 0.5), \"not above\" when it includes 0, " +
-	"\"below\" when it lies wholly below 0, \"the same\" when the difference and its interval are 0 (a copy of the null), \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
+	"\"below\" when it lies wholly below 0, \"the same\" when every paired difference is 0 (a copy of the null; read whatever the number of common test points), \"not judged\" (the difference is shown, its interval not read) on fewer than 10 common test points (our cut-off). " +
 	"Each interval is a test on its own extent, not adjusted for the number of extents. " +
 	"The partial ROC ratio and every sentence are under Analysis, Model minus null."
 

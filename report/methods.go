@@ -232,7 +232,7 @@ func methodsScores(b *strings.Builder, r *Results) {
 	st := r.Settings
 	fmt.Fprintf(b, " On each extent we computed the full AUC (Hanley & McNeil 1982) of the test records against every cell of the extent, weighted by cell area (%s); the presences' own cells are part of that background", strings.TrimSpace(r.Grid.CellAreaNote))
 	if len(st.E) > 0 {
-		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008: the area under the ROC curve where at most a share E of the test records is omitted, over the area under the random line there; 1 is random) at E = %s, with x_E, the share of the area where the curve reaches 1 − E, interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resample%s of %s%% of the test records (seeded from the run seed %d with the model's and the extent's names; p is not resolved below 1/%d",
+		fmt.Fprintf(b, "; the partial ROC ratio (Peterson et al. 2008: the area under the ROC curve where at most a share E of the test records is omitted, over the area under the random line there; 1 is random) at E = %s, with x_E, the share of the area where the curve reaches 1 − E, interpolated linearly along the curve segment that crosses 1 − E, reported as undefined where that crossing falls among test records tied at one value (the reading at thresholds only is given instead), and with its own interval and p-value from %s of %d resample%s of %s%% of the test records (seeded from the run seed %d with the extent's name, not the model's; p is not resolved below 1/%d",
 			fmtList(st.E, ""), bootstrapName(st), st.Iterations, Plural(st.Iterations), fmtG(100*st.ResampleFraction), r.Seed, st.Iterations)
 		switch fewPts, fewB := fewResamplePoints(r), fewFormedBootstrap(r); {
 		case fewPts && fewB:
@@ -316,7 +316,7 @@ func methodsInference(b *strings.Builder, r *Results) {
 		b.WriteString("\n\n")
 		return
 	}
-	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample%s; our cut-offs)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
+	fmt.Fprintf(b, " We call a score robust to the extent when every 95%% interval of its difference from %s lies within a tolerance we chose (AUC ±%s, omission rate and predicted area ±%s%s), extent-sensitive when at least one lies wholly outside it, and undetermined otherwise; a difference on fewer than %d common test records (%d for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer%s; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent)%s was not judged, and the intervals were not adjusted for the number of extents compared.",
 		referenceText(s, "the base extent (%s)"), fmtG(st.ToleranceAUC), fmtG(st.ToleranceOmission), defaultsNote(st), MinPairedPoints, MinResampledPoints, crossingNote(st), fewResamplesNote(r))
 	b.WriteString(boyceNotJudged(s, st))
 	b.WriteString(partialROCNotJudged(s, st))
@@ -657,12 +657,14 @@ func randomTestCount(r *Results, model string, e float64) string {
 		return fmt.Sprintf(", and it was not tested against %s: at most %d draw%s formed a ratio on an extent, fewer than the %d (our cut-off) from which a p-value can fall below %s", random, most, Plural(most), MinRandomDraws, fmtG(randomPCutoff))
 	case tested == 0:
 		return ""
+	case tested == 1 && above == 0:
+		// "not above ... (one-sided p below 0.025)" read as if p was below.
+		return fmt.Sprintf(", and not above %s on the one extent where it was tested (its one-sided p is not below %s, our cut-off)", random, fmtG(randomPCutoff))
 	case tested == 1:
-		verb := "above"
-		if above == 0 {
-			verb = "not above"
-		}
-		return fmt.Sprintf(", and %s %s on the one extent where it was tested (one-sided p below %s, our cut-off)", verb, random, fmtG(randomPCutoff))
+		return fmt.Sprintf(", and above %s on the one extent where it was tested (one-sided p below %s, our cut-off)", random, fmtG(randomPCutoff))
+	case above == 0:
+		return fmt.Sprintf(", and above %s on none of the %d extents where it was tested (on none is the one-sided p below %s, our cut-off; each extent tested on its own, not adjusted for their number)",
+			random, tested, fmtG(randomPCutoff))
 	}
 	return fmt.Sprintf(", and above %s on %d of the %d extents where it was tested (one-sided p below %s, our cut-off; each extent tested on its own, not adjusted for their number)",
 		random, above, tested, fmtG(randomPCutoff))

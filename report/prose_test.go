@@ -976,7 +976,7 @@ func TestAboveNullWithoutSkill(t *testing.T) {
 	// sentences say, "the same", not "not above" (the known-answer
 	// study's null of the user's, the same file as a model).
 	same := NullGap{Extent: "base", Defined: true, CommonPoints: 150, Method: "placements", ModelValue: 0.110, NullValue: 0.110, Reading: ReadingNotAbove}
-	if w := readingWords(MetricAUC, &same); w != "the same (difference and interval 0)" {
+	if w := readingWords(MetricAUC, &same); w != "the same (every paired difference 0)" {
 		t.Errorf("a copy of the null reads %q", w)
 	}
 	// The Boyce index has no random level here: nothing is added.

@@ -545,10 +545,12 @@ func (p *Paired) Judged() bool { return p.notJudgedKind() == "" }
 // partial ROC ratio's between two extents, partialROCExtentCoverage, so)
 // and any such difference of method paired_resamples, ""
 // when p is judged. Too few points is said first: it is the reason
-// whatever the resamples.
+// whatever the resamples. A difference that is 0 by construction
+// (zeroByConstruction) is judged on any number of points (the cut-off on
+// formed resamples, a matter of --iterations, still applies).
 func (p *Paired) notJudgedKind() string {
 	switch {
-	case p.CommonPoints < p.minPoints():
+	case p.CommonPoints < p.minPoints() && !p.zeroByConstruction():
 		return positionTooFew
 	case p.Method == "paired_resamples" && p.Formed() < MinPercentileResamples:
 		return positionTooFewResamples
@@ -689,6 +691,29 @@ func Float(v float64) *float64 { return &v }
 // (Resamples - NotFormed).
 func (p *Paired) Formed() int { return p.Resamples - p.NotFormed }
 
+// zeroByConstruction tells whether p is an omission rate's difference
+// between two extents of one model that is exactly 0 (with its SE and
+// interval, where it has them): each side compares the same common test
+// points with the same threshold, fixed from the training points or by
+// the user whatever the extent (metrics.ThresholdRules), so every paired
+// difference is 0 whatever the data. It has no sampling error, and a
+// cut-off on the number of common test points, which guards intervals
+// that under-cover on few points, has nothing to guard: it is judged
+// (inside any tolerance) on any number. The audit's verdict read
+// "undetermined: too few common test points to tell whether it moves by
+// more than ±0.05, although every difference from base is 0" on 6 and 8
+// common points. The check on the value, not the metric alone, keeps a
+// threshold that did depend on the extent from passing unjudged.
+func (p *Paired) zeroByConstruction() bool {
+	if !p.Defined || p.Kind != PairedKindExtent || !strings.HasPrefix(p.Metric, "omission_") || p.Diff != 0 {
+		return false
+	}
+	if se, lo, hi, ok := p.Interval(); ok && (se != 0 || lo != 0 || hi != 0) {
+		return false
+	}
+	return true
+}
+
 // NotJudgedReason says why a defined p is reported but not judged, as
 // results.json's not_judged_reason and the report give it, or "" when it
 // is judged (or undefined: nothing to judge).
@@ -712,7 +737,8 @@ func (p *Paired) minPoints() int { return minCommonPoints(p.Method, p.Kind, p.Me
 // extents of one model, whose difference is 0 in every resample (both
 // sides compare each common test point with the model's same threshold,
 // fixed from its training points whatever the extent), so that no
-// interval is to be calibrated.
+// interval is to be calibrated; notJudgedKind judges such a difference on
+// any number of points when it is 0 (zeroByConstruction).
 //
 // A partial ROC ratio's difference between two models (or a model and a
 // null) from the resamples also needs E n >= MinCrossingPoints

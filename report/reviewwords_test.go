@@ -148,7 +148,11 @@ func TestOmissionRobustByConstruction(t *testing.T) {
 	for _, mv := range s.ModelVerdicts {
 		if mv.Metric == "omission_minimum_training_presence" && mv.Verdict == JudgementRobust {
 			found = true
-			checkWords(t, "verdict", mv.Sentence, []string{"every one is 0, as it must be: the threshold does not depend on the extent (it comes from the training points, or is fixed), so on the test points both extents hold it omits the same ones"}, nil)
+			checkWords(t, "verdict", mv.Sentence, []string{"every one is 0, as it must be: the threshold comes from the training points, whatever the extent, so on the test points both extents hold it omits the same ones"}, nil)
+		}
+		if strings.HasPrefix(mv.Metric, "omission_fixed_") && mv.Verdict == JudgementRobust {
+			// The user's threshold, not the training points'.
+			checkWords(t, "fixed", mv.Sentence, []string{"as it must be: the threshold is fixed, whatever the extent"}, []string{"from the training points"})
 		}
 	}
 	if !found {
@@ -179,4 +183,70 @@ func TestKendallWReadsPointEstimates(t *testing.T) {
 		t.Fatal(err)
 	}
 	checkWords(t, "page", string(page), []string{"agree on the order of the models' point estimates (1 = the same order everywhere, however small the differences; tie-corrected)"}, nil)
+}
+
+// TestOmissionZeroJudgedOnFewPoints: an omission rate's difference
+// between two extents is 0 on their common test points by construction
+// (the threshold does not depend on the extent), so it has no sampling
+// error and is judged on any number of common points. The audit's
+// verdict read "undetermined: too few common test points to tell whether
+// it moves by more than ±0.05, although every difference from base is 0"
+// with 6 and 8 common points, and the reviewer reply that the test
+// records cannot tell. A difference that is not 0, or not of an omission
+// rate between extents, keeps the cut-off.
+func TestOmissionZeroJudgedOnFewPoints(t *testing.T) {
+	zero := func(p Paired) Paired {
+		p.Defined, p.Diff, p.SE, p.Low, p.High = true, 0, Float(0), Float(0), Float(0)
+		return p
+	}
+	for _, c := range []struct {
+		name   string
+		p      Paired
+		judged bool
+	}{
+		{"omission between extents, 0, 6 points", zero(Paired{Metric: "omission_minimum_training_presence", Kind: PairedKindExtent, CommonPoints: 6, Method: "paired_resamples", Resamples: 200}), true},
+		{"fixed threshold between extents, 0, 2 points", zero(Paired{Metric: "omission_fixed_0.5", Kind: PairedKindExtent, CommonPoints: 2, Method: "paired_resamples", Resamples: 200}), true},
+		{"omission between extents, not 0", func() Paired {
+			p := zero(Paired{Metric: "omission_minimum_training_presence", Kind: PairedKindExtent, CommonPoints: 6, Method: "paired_resamples", Resamples: 200})
+			p.Diff, p.High = 0.1, Float(0.2)
+			return p
+		}(), false},
+		{"omission between models, 0", zero(Paired{Metric: "omission_minimum_training_presence", Kind: PairedKindModel, CommonPoints: 6, Method: "paired_resamples", Resamples: 200}), false},
+		{"AUC between extents, 0", zero(Paired{Metric: "auc", Kind: PairedKindExtent, CommonPoints: 6, Method: "placements"}), false},
+	} {
+		if got := c.p.Judged(); got != c.judged {
+			t.Errorf("%s: judged %v, want %v (%q)", c.name, got, c.judged, c.p.NotJudgedReason())
+		}
+	}
+	// The verdict: the sample's omission differences on one extent put on
+	// 6 common points are judged, robust, and the sentence says why.
+	r := loadSample(t)
+	ext := ""
+	for i := range r.Paired {
+		p := &r.Paired[i]
+		if p.Kind == PairedKindExtent && p.Model == "good" && p.Metric == "omission_minimum_training_presence" && p.Defined && p.Diff == 0 {
+			if ext == "" {
+				ext = p.Extent
+			}
+			if p.Extent == ext {
+				p.CommonPoints = 6
+				p.NotJudged = p.NotJudgedReason()
+			}
+		}
+	}
+	if ext == "" {
+		t.Fatal("no omission difference of good between extents in the sample")
+	}
+	s := analyzed(t, r)
+	for _, mv := range s.ModelVerdicts {
+		if mv.Metric == "omission_minimum_training_presence" && mv.Model == "good" {
+			if mv.Verdict != JudgementRobust {
+				t.Errorf("verdict %s: %s", mv.Verdict, mv.Sentence)
+			}
+			checkWords(t, "verdict", mv.Sentence, []string{"The difference on " + ext + " (6 common test points) is judged on fewer than the 10 common test points we otherwise judge a difference on (our cut-off): a difference that is 0 by construction has no sampling error."},
+				[]string{"too few common test points", "Not judged"})
+			return
+		}
+	}
+	t.Fatal("no omission verdict of good")
 }

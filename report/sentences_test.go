@@ -426,9 +426,9 @@ func TestMethodsTextSituations(t *testing.T) {
 				// judged against (TestToleranceListsJudgedOnly).
 				"tolerances we chose (AUC ±0.02, omission rate and predicted area ±0.05; areasweep's defaults, not a published standard)",
 				"The Boyce index's differences were described, not judged",
-				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged, and the intervals were not adjusted",
+				"and undetermined otherwise; a difference on fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent) was not judged, and the intervals were not adjusted",
 				"Differences between extents of one model, and between models on one extent, were taken on the test records both sides hold (paired)",
-				"(seeded from the run seed 20240611 with the model's and the extent's names; p is not resolved below 1/200)",
+				"(seeded from the run seed 20240611 with the extent's name, not the model's; p is not resolved below 1/200)",
 				// AUC is extent-sensitive for each of the sample's models,
 				// the predicted area for some (TestReplySensitiveForEvery).
 				"AUC and AUC (cells unweighted) moved with the extent by more than the tolerance for every model.",
@@ -1070,13 +1070,15 @@ func TestNullGapEndsNamed(t *testing.T) {
 
 // TestTooFewAllZero: a verdict left undetermined by differences on too
 // few test points, every difference being 0, does not name one extent's
-// "+0.000" as the largest.
+// "+0.000" as the largest. (AUC: an omission rate's differences between
+// extents, 0 by construction, are judged on any number of points,
+// TestOmissionZeroJudgedOnFewPoints.)
 func TestTooFewAllZero(t *testing.T) {
 	r := liftResampled(loadSample(t))
-	const metric = "omission_minimum_training_presence"
+	const metric = "auc"
 	for i := range r.Paired {
 		if p := &r.Paired[i]; p.Metric == metric && p.Kind == PairedKindExtent && p.Model == "good" {
-			p.Diff, p.Low, p.High = 0, Float(0), Float(0)
+			p.Diff, p.SE, p.Low, p.High = 0, Float(0), Float(0), Float(0)
 		}
 	}
 	if setPaired(r, metric, PairedKindExtent, "good", "hull", func(p *Paired) { p.CommonPoints = 6 }) != 1 {
@@ -1343,10 +1345,10 @@ func TestVerdictMultiplicity(t *testing.T) {
 	checkWords(t, "page", string(page), []string{"The intervals are per extent, not adjusted for the number of extents"}, nil)
 }
 
-// TestModelSameAsNull: a model whose every paired difference from a null,
-// and its interval, is 0 (a copy of the null) "is the same as" the null;
-// "not above beyond noise" and a gap "moving" from +0.000 to +0.000
-// would speak of noise and movement where there is none.
+// TestModelSameAsNull: a model whose every paired difference from a null
+// is 0 (a copy of the null) "is the same as" the null; "not above beyond
+// noise" and a gap "moving" from +0.000 to +0.000 would speak of noise
+// and movement where there is none. No interval is quoted for it.
 func TestModelSameAsNull(t *testing.T) {
 	r := withNull(t)
 	ps := nullPaired(r)
@@ -1359,14 +1361,83 @@ func TestModelSameAsNull(t *testing.T) {
 		if an.Metric != "auc" || an.Model != "good" {
 			continue
 		}
-		notWant := []string{"not above", "moves from", "runs from", "within noise"}
-		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null): the difference and its 95% interval are 0 (0.800 against 0.800).",
-			"are 0 on every one."}, notWant)
-		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (AUC difference and its 95% interval 0); the gap is 0 on every extent"}, notWant)
-		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName + " (difference and interval 0)"}, []string{"not above"})
+		notWant := []string{"not above", "moves from", "runs from", "within noise", "interval"}
+		checkWords(t, "sentence", an.Sentence, []string{"On base, AUC of good is the same as that of " + DistanceNullName + " (distance-only null) on their 21 common test points (0.800 against 0.800): every test point's placement is the same, so there is no gap to judge against noise.",
+			"Across 8 extents it is the same on every one (every paired difference 0)."}, notWant)
+		checkWords(t, "headline", s.Headline, []string{"good scores the same as " + DistanceNullName + " on base (every paired AUC difference 0, on 21 common test points); the gap is 0 on every extent"}, notWant[:4])
+		checkWords(t, "reply", reviewerNullText(s), []string{"the AUC of good is the same as that of " + DistanceNullName}, []string{"not above"})
 		return
 	}
 	t.Fatal("no AUC comparison of good with the null")
+}
+
+// TestModelSameAsNullFewPoints: a model the same as a null on fewer
+// common test points than a difference is judged on (the partial ROC
+// ratio's 30 at E = 0.05; AUC's 10) is the same, as its AUC on more
+// points is: the audit's model written from the distance-only null read
+// "+0.000 (1.037 against 1.037) on 12 common test points, fewer than the
+// 30 we judge a difference on: whether it beats the null is not told",
+// then "the difference and its interval are 0 on every one", and
+// results.json read too_few where AUC read the same. There is no noise
+// to judge an exact 0 against, whatever the number of points.
+func TestModelSameAsNullFewPoints(t *testing.T) {
+	key := MetricKeyPartialROC(0.05)
+	for _, c := range []struct {
+		metric, method string
+		m              MetricInfo
+		points         int
+		want           string
+	}{
+		{key, "paired_resamples", MetricInfo{Key: key, Kind: MetricPartialROC, E: 0.05}, 12,
+			"On base, the partial ROC ratio of dn at E = 0.05 is the same as that of dcopy (null) on their 12 common test points (1.037 against 1.037): the difference is 0 on them and on every paired resample, so there is no gap to judge against noise."},
+		{"auc", "placements", MetricInfo{Key: "auc", Kind: MetricAUC, Label: "AUC"}, 6,
+			"On base, AUC of dn is the same as that of dcopy (null) on their 6 common test points (1.037 against 1.037): every test point's placement is the same, so there is no gap to judge against noise."},
+	} {
+		var ps []Paired
+		for _, ext := range []string{"base", "hull"} {
+			ps = append(ps, Paired{Metric: c.metric, Kind: PairedKindNull, Model: "dn", Extent: ext, OtherModel: "dcopy", OtherExtent: ext,
+				CommonPoints: c.points, Method: c.method, Defined: true, A: 1.037, B: 1.037, SE: Float(0), Low: Float(0), High: Float(0), Resamples: 200})
+		}
+		if ps[0].Judged() {
+			t.Fatalf("%s: %d common points should be below the cut-off", c.metric, c.points)
+		}
+		a := &analysis{r: &Results{Models: []Model{{Name: "dn"}, {Name: "dcopy", Role: RoleNull, NullKind: "raster"}}, Paired: ps},
+			metrics: []MetricInfo{c.m}, models: []string{"dn"}, base: "base", paired: map[pairedKey]int{}, extIndex: map[string]int{}, scores: map[[2]string]*Score{}}
+		for i, p := range ps {
+			a.paired[pairedKey{p.Metric, p.Kind, p.Model, p.Extent, p.OtherModel, p.OtherExtent}] = i
+		}
+		ans := a.aboveNull([]string{"base", "hull"})
+		if len(ans) != 1 {
+			t.Fatalf("%s: %d comparisons, want 1", c.metric, len(ans))
+		}
+		an := ans[0]
+		if an.BaseReading != ReadingNotAbove || an.NotAbove != 2 || an.Gaps[0].NotJudged != "" || an.Gaps[1].Reading != ReadingNotAbove {
+			t.Errorf("%s: reading %q, not above %d, not judged %q, on hull %q; want not_above on both extents, read",
+				c.metric, an.BaseReading, an.NotAbove, an.Gaps[0].NotJudged, an.Gaps[1].Reading)
+		}
+		checkWords(t, c.metric, an.Sentence, []string{c.want, "Across 2 extents it is the same on every one (every paired difference 0)."},
+			[]string{"not told", "interval", "fewer than"})
+		if w := readingWords(c.m.Kind, &an.Gaps[0]); w != "the same (every paired difference 0)" {
+			t.Errorf("%s: table reads %q", c.metric, w)
+		}
+	}
+}
+
+// TestHeadlineCountsSame: past maxHeadlinePairs the headline counts the
+// pairs where the model is the same as the null apart from those within
+// noise: "within noise in 8" of the audit counted two copies of a null as
+// noise while the methods called them the same.
+func TestHeadlineCountsSame(t *testing.T) {
+	var gaps []baseGap
+	for i := range 8 {
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, NullValue: 0.58, Diff: 0.02, SE: 0.05, Low: -0.08, High: 0.12, Reading: ReadingNotAbove}
+		if i < 2 {
+			g.NullValue, g.Diff, g.SE, g.Low, g.High = 0.6, 0, 0, 0, 0
+		}
+		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: ReadingNotAbove}, g})
+	}
+	checkWords(t, "counts", aboveNullCounts(gaps),
+		[]string{"of the 8 pairs of a model and a null, the model is above the null beyond noise (AUC) in 0, within noise in 6, below in 0 and the same (every paired difference 0) in 2 (each pair"}, []string{"within noise in 8"})
 }
 
 // TestKendallWUndefinedSaysWhy: when every extent ties every model, the
@@ -1480,7 +1551,7 @@ func TestTenPointCutoffOurs(t *testing.T) {
 			checkWords(t, "gap", an.Sentence, []string{"not told on 1 with fewer than 10 common test points (our cut-off). This describes the family of extents; it is not a test."}, []string{") ("})
 		}
 	}
-	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer, except an omission rate between extents, which is 0 in every resample; our cut-offs) was not judged"}, nil)
+	checkWords(t, "methods", methodsText(r), []string{"fewer than 10 common test records (30 for a difference from the resamples, whose percentile intervals our simulation check found misleading on fewer; our cut-offs; none for an omission rate between extents, which is 0 on the test records both hold by construction, its threshold not depending on the extent) was not judged"}, nil)
 	page, err := htmlPage(r, nil, methodsDoc{})
 	if err != nil {
 		t.Fatal(err)
@@ -2267,7 +2338,8 @@ func TestNoSkillPartialROCAndCounts(t *testing.T) {
 		if vs != "" {
 			reading = ReadingAbove
 		}
-		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Reading: reading, ModelVsRandom: vs}
+		// Within noise: an interval around 0, not 0 itself (the same).
+		g := &NullGap{Extent: "base", Defined: true, ModelValue: 0.6, Diff: 0.01, SE: 0.03, Low: -0.05, High: 0.07, Reading: reading, ModelVsRandom: vs}
 		gaps = append(gaps, baseGap{&AboveNull{Model: fmt.Sprint("m", i), BaseExtent: "base", BaseReading: reading}, g})
 	}
 	checkWords(t, "counts", aboveNullCounts(gaps),
@@ -2343,6 +2415,16 @@ func TestPublishedPCaution(t *testing.T) {
 	}
 	r.Scores[second].PartialROC[0].PRandom, r.Scores[second].PartialROC[0].RandomFormed = 0.3, 200
 	checkWords(t, "methods results", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on 1 of the 2 extents where it was tested (one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"}, nil)
+	// Not above on every extent tested: the cut-off is not said as if p
+	// was below it ("not above ... (one-sided p below 0.025, our cut-off)"
+	// and "on 0 of the 2 extents ... (one-sided p below 0.025)" read so).
+	r.Scores[0].PartialROC[0].PRandom = 0.2
+	checkWords(t, "methods results, none above", methodsText(r), []string{"and above that of as many test records drawn at random over the extent's area on none of the 2 extents where it was tested (on none is the one-sided p below 0.025, our cut-off; each extent tested on its own, not adjusted for their number)"},
+		[]string{"on 0 of the 2 extents"})
+	r.Scores[second].PartialROC[0].RandomFormed = 39
+	checkWords(t, "methods results, one not above", methodsText(r), []string{"and not above that of as many test records drawn at random over the extent's area on the one extent where it was tested (its one-sided p is not below 0.025, our cut-off)"},
+		[]string{"where it was tested (one-sided p below"})
+	r.Scores[0].PartialROC[0].PRandom, r.Scores[second].PartialROC[0].RandomFormed = 0.0123, 200
 	// A p from fewer than 40 formed draws is not read: 1/(1+d) is not
 	// below 0.025 for d < 40, so it could not tell the model above random
 	// (helper audit of 2026-12-05: "on 0 of the 13 extents where it was

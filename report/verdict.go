@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"areasweep/extent/vocab"
+	"areasweep/metrics"
 )
 
 // pairedFor returns the paired record of metric between (model, ext) and
@@ -275,7 +276,7 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 		if m.Kind == MetricOmission {
 			// Not a finding: on the test points two extents share, a
 			// threshold from the training points omits the same ones.
-			largest += ", as it must be: " + omissionByConstruction
+			largest += ", as it must be: " + omissionWhyZero(m)
 		}
 	}
 	notOn := ""
@@ -303,15 +304,15 @@ func (a *analysis) judge(m MetricInfo, model string, mv *ModelVerdict, outside i
 			name, outside, len(mv.Diffs), Plural(len(mv.Diffs)), a.base, toleranceText(m), largest, notOn, tooFewText(mv.Diffs))
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs) && one:
 		mv.Verdict = JudgementRobust
-		mv.Sentence = fmt.Sprintf("%s is robust to the extent: its one difference from %s, %s, lies within %s.", name, a.base, differenceText(big, m.Tolerance), tol)
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: its one difference from %s, %s, lies within %s.%s", name, a.base, differenceText(big, m.Tolerance), tol, judgedFewText(mv.Diffs))
 	case len(mv.Undefined) == 0 && allInside(mv.Diffs):
 		mv.Verdict = JudgementRobust
-		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.", name, a.base, within, largestWithin)
+		mv.Sentence = fmt.Sprintf("%s is robust to the extent: every difference from %s %s; %s.%s", name, a.base, within, largestWithin, judgedFewText(mv.Diffs))
 	case allInside(definedDiffs(mv.Diffs)):
 		// Undetermined only because the score is undefined somewhere:
 		// the test points are not the reason.
-		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.",
-			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin)
+		mv.Sentence = fmt.Sprintf("%s is undetermined: %s, and every difference from %s that could be formed %s; %s.%s",
+			name, a.undefinedText(m, model, *mv), a.base, within, largestWithin, judgedFewText(mv.Diffs))
 	case big.zero():
 		// Every difference is 0: no extent is "the largest". Undetermined
 		// for the differences on too few test points, or for an interval
@@ -353,11 +354,45 @@ func (mv *ModelVerdict) fewCommon() (most int, ok bool) {
 	return most, len(mv.Diffs) > 0
 }
 
-// omissionByConstruction says why an omission rate's paired difference
-// between extents is 0 whatever the data: its "robust" is not evidence.
-// A fixed threshold (--thresholds) does not come from the training
-// points ("comes from the training points" was said of it too).
-const omissionByConstruction = "the threshold does not depend on the extent (it comes from the training points, or is fixed), so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
+// omissionWhyZero says why an omission rate's paired difference between
+// extents is 0 whatever the data: its "robust" is not evidence. A fixed
+// threshold is the user's, not the training points' ("comes from the
+// training points" was said of --thresholds 0.5 too).
+func omissionWhyZero(m MetricInfo) string {
+	from := "comes from the training points"
+	if m.Threshold == metrics.ThresholdFixed {
+		from = "is fixed"
+	}
+	return "the threshold " + from + ", whatever the extent, so on the test points both extents hold it omits the same ones; only a change of test points moves the rate"
+}
+
+// judgedFewText names the judged differences of ds on fewer common test
+// points than a difference is otherwise judged on: an omission rate's
+// between extents, 0 by construction (Paired.zeroByConstruction), has no
+// sampling error to guard against, so the cut-off does not apply, and
+// the sentence says so rather than leave "robust" on 6 points unexplained.
+func judgedFewText(ds []ExtentDifference) string {
+	var few []string
+	cut := 0
+	for _, d := range ds {
+		if d.Defined && !d.notJudged() && d.Method != "exact" && d.CommonPoints < d.cut() {
+			unit := ""
+			if len(few) == 0 {
+				unit = " common test point" + Plural(d.CommonPoints)
+			}
+			few = append(few, fmt.Sprintf("%s (%d%s)", d.Extent, d.CommonPoints, unit))
+			cut = d.cut()
+		}
+	}
+	if len(few) == 0 {
+		return ""
+	}
+	the, verb := "The difference on", "is"
+	if len(few) > 1 {
+		the, verb = "The differences on", "are"
+	}
+	return fmt.Sprintf(" %s %s %s judged on fewer than the %d common test points we otherwise judge a difference on (our cut-off): a difference that is 0 by construction has no sampling error.", the, joinList(few), verb, cut)
+}
 
 // describedText describes, without judging, the Boyce index or the
 // partial ROC ratio m of a model (name: "Boyce index of M") across

@@ -240,7 +240,10 @@ func compareNullAndCopy(t *testing.T, res *report.Results, withBoyce bool) {
 		key := func(sc report.Score) string {
 			ratios := ""
 			for _, p := range sc.PartialROC {
-				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations)
+				// The published bootstrap and the area-random draws too:
+				// seeded by the run seed and the extent, not the model's
+				// name, identical predictions draw alike (deriveSeed).
+				ratios += fmt.Sprint(p.E, p.Ratio, p.Iterations, p.RatioMean, p.RatioSD, p.CILow, p.CIHigh, p.PValue, p.NotFormed, p.PRandom, p.RandomFormed, p.PRandomNote)
 			}
 			boyce := "none"
 			if b := sc.Boyce; b != nil && withBoyce {

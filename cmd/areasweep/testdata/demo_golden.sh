@@ -267,10 +267,22 @@
 #     not "the partial ROC ratio at E = 0.05 of good", and one that could
 #     not be formed says which side is undefined there and why; no number
 #     changed, scores.csv unchanged).
-#   - rewritten again in session 17 (the robust omission verdicts say the
-#     threshold does not depend on the extent, being from the training
-#     points or fixed, not that it comes from the training points; no
-#     number changed, scores.csv unchanged).
+#   - rewritten on 2026-12-05, branch hnull (an omission rate's difference
+#     between extents, 0 by construction, is judged on any number of
+#     common test points, and the by-construction clause of its verdict
+#     reads "the threshold comes from the training points, whatever the
+#     extent" ("is fixed" for a fixed threshold): four verdict sentences
+#     in results.json changed; no number changed, scores.csv unchanged).
+#   - rewritten on 2026-12-05, branch hnull (the published partial ROC
+#     bootstrap and the area-random draws are seeded by the run seed and
+#     the extent's name, no longer the model's, so that identical
+#     predictions draw alike: the published bootstrap's ratio_mean,
+#     ratio_sd, ci_low, ci_high and iterations_not_formed moved, with the
+#     spreads' boot_low, boot_high and boot_sd derived from them and the
+#     matching columns of scores.csv; every other number, p_random
+#     included (the demo's models take the shared draws), is unchanged).
+#   - rewritten at the merge of hnull into main (both changes together,
+#     nothing else).
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/../../.." && pwd)"

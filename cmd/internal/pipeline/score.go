@@ -255,7 +255,7 @@ func (s *Study) scoreExtent(model string, k int, acc *metrics.Accumulator, in po
 	}
 	train, test := in.values(k, vocab.RoleTrain), in.values(k, vocab.RoleTest)
 	sc.TestOutside, sc.TrainOutside = nTest-len(test), len(set.ThresholdTrain)-len(train)
-	set.Seed = deriveSeed(s.o.Seed, model, mem.ID)
+	set.Seed = deriveSeed(s.o.Seed, mem.ID)
 	// The scores, and the evaluator of the paired comparisons (on the
 	// values of the scores' thresholds) from what the scoring computed.
 	global, ids := in.testIDs(k)
@@ -414,15 +414,24 @@ func (s *Study) analyse() error {
 	return report.Analyze(s.res)
 }
 
-// deriveSeed gives each model x extent its own bootstrap stream, fixed by
-// the run seed and the names alone (not by order or core count).
-func deriveSeed(seed uint64, model, ext string) uint64 {
+// deriveSeed gives each extent its own stream for the published
+// half-size bootstrap and the area-random draws of a model's own scores,
+// fixed by the run seed and the extent's name alone (not by order, core
+// count or shard split). The model's name is not part of it: two models
+// of identical predictions (a raster and its copy, a model and a null
+// written as a raster) get identical draws, so identical p-values and
+// intervals; seeded by the name they read "not above random on the one
+// extent where it was tested" and "above on 0 of the 2". Nothing claims
+// the models' draws independent of one another: the models of a run
+// share their test points, the paired resamples (Draws) and, on nearly
+// continuous extents, the area-random draws of their number of test
+// points already, and each model's p and interval is read on its own.
+// Every E of one model shares the stream, as before.
+func deriveSeed(seed uint64, ext string) uint64 {
 	h := fnv.New64a()
 	var b [8]byte
 	binary.LittleEndian.PutUint64(b[:], seed)
 	h.Write(b[:])
-	h.Write([]byte(model))
-	h.Write([]byte{0})
 	h.Write([]byte(ext))
 	return h.Sum64()
 }
