@@ -2505,4 +2505,9 @@ func TestOneExtentHeadlineSaysWhy(t *testing.T) {
 	if mv := s.findModelVerdict("auc", "good"); mv == nil || verdictPhrase(mv) != "not compared across extents (scored on base only)" {
 		t.Errorf("AUC of good with one extent: %+v", mv)
 	}
+	for _, v := range s.Verdicts {
+		if v.Metric == "auc" {
+			checkWords(t, "AUC verdict", v.Sentence, []string{"AUC: no difference from the base extent could be formed for any model (each model's sentence says why)."}, []string{"undetermined for"})
+		}
+	}
 }

@@ -694,6 +694,26 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	case len(v.Robust) > 0 && len(v.Undetermined) == 0:
 		v.Verdict = JudgementRobust
 	}
+	from := "the base extent"
+	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID && mvs[0].Base != "" {
+		// The first scored extent stands in for a base extent that could
+		// not be scored: name it, not "the base extent".
+		from = "the reference extent " + mvs[0].Base
+	}
+	// A model with no difference from the base at all (one extent
+	// scored, or a constant model) is named apart: "undetermined for
+	// good, rev and const" was written where nothing could be compared
+	// (sentence audit of 2026-12-05).
+	var undetermined, none []string
+	for _, mv := range mvs {
+		if mv.Verdict != JudgementSensitive && mv.Verdict != JudgementRobust {
+			if len(mv.Diffs) == 0 {
+				none = append(none, mv.Model)
+			} else {
+				undetermined = append(undetermined, mv.Model)
+			}
+		}
+	}
 	var parts []string
 	if len(v.Sensitive) > 0 {
 		parts = append(parts, "extent-sensitive for "+joinList(v.Sensitive))
@@ -701,16 +721,16 @@ func verdictFor(m MetricInfo, mvs []ModelVerdict) Verdict {
 	if len(v.Robust) > 0 {
 		parts = append(parts, "robust for "+joinList(v.Robust))
 	}
-	if len(v.Undetermined) > 0 {
-		parts = append(parts, "undetermined for "+joinList(v.Undetermined))
+	if len(undetermined) > 0 {
+		parts = append(parts, "undetermined for "+joinList(undetermined))
 	}
-	from := "the base extent"
-	if len(mvs) > 0 && mvs[0].Base != vocab.BaseID && mvs[0].Base != "" {
-		// The first scored extent stands in for a base extent that could
-		// not be scored: name it, not "the base extent".
-		from = "the reference extent " + mvs[0].Base
+	if len(none) > 0 {
+		parts = append(parts, fmt.Sprintf("no difference from %s could be formed for %s (each model's sentence says why)", from, joinList(none)))
 	}
 	v.Sentence = fmt.Sprintf("%s: %s.", withinBracket(upperFirst(m.Label), fmt.Sprintf("tolerance ±%s, paired differences from %s", fmtG(m.Tolerance), from)), strings.Join(parts, "; "))
+	if len(none) == len(mvs) && len(mvs) > 0 {
+		v.Sentence = fmt.Sprintf("%s: no difference from %s could be formed for any model (each model's sentence says why).", upperFirst(m.Label), from)
+	}
 	if m.Kind == MetricBoyce || m.Kind == MetricPartialROC {
 		v.Sentence = describedVerdictSentence(m, mvs, from)
 	}
