@@ -501,7 +501,7 @@ func oneExtentHeadline(b *strings.Builder, a *analysis, s *Sensitivity, lo float
 	for _, m := range s.scoredNowhere() {
 		for _, u := range s.Unscored {
 			if u.Model == m && u.Extent == s.ScoredExtents[0] {
-				fmt.Fprintf(b, "; %s is not scored (%s)", m, u.Reason)
+				fmt.Fprintf(b, "; %s is not scored: %s", m, u.Reason)
 				break
 			}
 		}

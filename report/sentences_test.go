@@ -2500,7 +2500,7 @@ func TestOneExtentHeadlineSaysWhy(t *testing.T) {
 	}
 	s := analyzed(t, r)
 	checkWords(t, "headline", s.Headline, []string{"could be scored (the other 9 extents: region_b50, region_b100, region_b200 and 6 more: the same cells as base), so no score",
-		"; broad is not scored (model has one value on every cell with data)."}, []string{"broad 0."})
+		"; broad is not scored: model has one value on every cell with data."}, []string{"broad 0."})
 	// Nothing to compare: no verdict word.
 	if mv := s.findModelVerdict("auc", "good"); mv == nil || verdictPhrase(mv) != "not compared across extents (scored on base only)" {
 		t.Errorf("AUC of good with one extent: %+v", mv)
