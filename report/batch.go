@@ -222,7 +222,10 @@ type BatchCounts struct {
 	// reading: TooFew on fewer than MinPairedPoints common test points
 	// (not read), the rest of NullPairs undefined. NullDistance counts the
 	// pairs whose null is the distance-only null.
-	NullPairs, Above, NotAbove, Below, TooFew, NullDistance int
+	// Same counts the pairs whose model scores as the null does (every
+	// paired difference 0), apart from NotAbove: "within noise" said of
+	// a copy of the null suggests noise where there is none.
+	NullPairs, Above, NotAbove, Same, Below, TooFew, NullDistance int
 	// AboveNoSkill counts the pairs of Above whose model's own AUC is not
 	// shown above 0.5 (BatchRow.NullNoSkill).
 	AboveNoSkill int
@@ -336,7 +339,11 @@ func (s *BatchSummary) addStudy(st StudyResult, ss *StudySummary) {
 					s.Counts.AboveNoSkill++
 				}
 			case ReadingNotAbove:
-				s.Counts.NotAbove++
+				if row.nullSame() {
+					s.Counts.Same++
+				} else {
+					s.Counts.NotAbove++
+				}
 			case ReadingBelow:
 				s.Counts.Below++
 			case ReadingTooFew:
@@ -461,6 +468,13 @@ func studyRow(r *Results, id, model string) BatchRow {
 		}
 	}
 	return row
+}
+
+// nullSame tells whether r's model scores as its null does on the base
+// extent: read not above, with the difference and its interval 0 (as
+// NullGap.zero), which the study's own text calls "the same".
+func (r BatchRow) nullSame() bool {
+	return r.NullDefined && r.NullReading == ReadingNotAbove && r.NullDiff == 0 && r.NullLow == 0 && r.NullHigh == 0
 }
 
 // standInReason is why the study's base extent was left out when another

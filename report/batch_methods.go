@@ -76,8 +76,12 @@ func (s *BatchSummary) methodsSections() []textSection {
 		results = append(results, e)
 	}
 	if c.NullPairs > 0 {
-		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d and below it for %d%s.",
-			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Below-c.TooFew))+s.noSkillSentence()+s.noNullSentence())
+		same := ""
+		if c.Same > 0 {
+			same = fmt.Sprintf(", the same as it (every paired difference 0) for %d", c.Same)
+		}
+		results = append(results, fmt.Sprintf("On the base extent, AUC was above the null beyond noise for %d of %d study-model pair%s%s, within noise of it for %d%s and below it for %d%s.",
+			c.Above, c.NullPairs, Plural(c.NullPairs), s.nullKindTail(), c.NotAbove, same, c.Below, nullTail(c.TooFew, c.NullPairs-c.Above-c.NotAbove-c.Same-c.Below-c.TooFew))+s.noSkillSentence()+s.noNullSentence())
 	}
 	secs := []textSection{
 		{Heading: "Methods", Paragraphs: []string{methods}},

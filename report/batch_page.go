@@ -136,6 +136,9 @@ func pageRowOf(r BatchRow, link string) pageRow {
 	}
 	if r.Null != "" {
 		pr.Reading = strings.ReplaceAll(r.NullReading, "_", " ")
+		if r.nullSame() {
+			pr.Reading = "the same (every paired difference 0)"
+		}
 		if r.NullNoSkill != "" {
 			// As in the study's own tables (readingWords).
 			pr.Reading += noSkillTag(r.NullNoSkill, 0.5)

@@ -1125,3 +1125,36 @@ func TestEffectLargestMagnitude(t *testing.T) {
 	}
 	checkWords(t, "methods", s.MethodsText(), []string{"-0.300 (study sample, model good, extent points_b25, on 5 common test points"}, nil)
 }
+
+// TestSummaryNullSame: a study whose model scores as its null does (the
+// difference and its interval 0 on the base extent) is counted "the
+// same", not "within noise", in the summary's sentence and page, as the
+// study's own text says it (sentence audit of 2026-12-05).
+func TestSummaryNullSame(t *testing.T) {
+	const T = DefaultToleranceAUC
+	auc := func(base, other float64) map[string]float64 { return map[string]float64{"base": base, "wide": other} }
+	studies := []StudyResult{
+		{ID: "alpha", Report: "alpha/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.80, 0.88),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0.01, -0.03, 0.05}, points: 40})},
+		{ID: "copy", Report: "copy/report.html", Results: handStudy(T, handModel{name: "m1", aucs: auc(0.70, 0.78),
+			effects: []effect{{"wide", 0.08, 0.05, 0.11}}, null: &effect{"base", 0, 0, 0}, points: 40})},
+	}
+	s, err := Summarize(studies)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Counts.NotAbove != 1 || s.Counts.Same != 1 {
+		t.Errorf("within noise %d, the same %d; want 1 and 1", s.Counts.NotAbove, s.Counts.Same)
+	}
+	var b strings.Builder
+	for _, sec := range s.methodsSections() {
+		b.WriteString(strings.Join(sec.Paragraphs, " "))
+	}
+	checkWords(t, "summary methods", b.String(), []string{"within noise of it for 1, the same as it (every paired difference 0) for 1 and below it for 0"}, nil)
+	for _, r := range s.Rows {
+		want := map[string]string{"alpha": "not above", "copy": "the same (every paired difference 0)"}[r.Study]
+		if got := pageRowOf(r, "").Reading; got != want {
+			t.Errorf("study %s: the page reads %q, want %q", r.Study, got, want)
+		}
+	}
+}
