@@ -165,21 +165,31 @@ func validity(g *godal.Geometry) (valid bool, reason string) {
 // enclose: it dropped the overlap of two parts and added the part of
 // such a hole outside its shell.
 func makeValid(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
+	return throughC(g, srs, func(b *C.uchar, n C.int, out *C.int) *C.uchar { return C.extentMakeValid(b, n, out) },
+		"GEOS gave no geometry", "GEOS gave a geometry that cannot be read")
+}
+
+// throughC hands g's WKB to one of our C functions (call: the bytes,
+// their length, and where it writes the length of the WKB it returns,
+// freed with VSIFree; nil for none) and reads back what it returns, in
+// srs; none and bad are the errors when it returns nothing or bytes that
+// do not read as a geometry.
+func throughC(g *godal.Geometry, srs *godal.SpatialRef, call func(b *C.uchar, n C.int, out *C.int) *C.uchar, none, bad string) (*godal.Geometry, error) {
 	b, err := g.WKB()
 	if err != nil || len(b) == 0 {
 		return nil, errors.New("its geometry cannot be read")
 	}
 	var n C.int
-	out := C.extentMakeValid((*C.uchar)(unsafe.Pointer(&b[0])), C.int(len(b)), &n)
+	out := call((*C.uchar)(unsafe.Pointer(&b[0])), C.int(len(b)), &n)
 	if out == nil {
-		return nil, errors.New("GEOS gave no geometry")
+		return nil, errors.New(none)
 	}
 	defer C.VSIFree(unsafe.Pointer(out))
-	fixed, err := godal.NewGeometryFromWKB(C.GoBytes(unsafe.Pointer(out), n), srs)
+	r, err := godal.NewGeometryFromWKB(C.GoBytes(unsafe.Pointer(out), n), srs)
 	if err != nil {
-		return nil, errors.New("GEOS gave a geometry that cannot be read")
+		return nil, errors.New(bad)
 	}
-	return fixed, nil
+	return r, nil
 }
 
 // faces returns g (in srs), a triangle, TIN or polyhedral surface or a
@@ -187,21 +197,8 @@ func makeValid(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error
 // extentFaces), or an error when it is not made of faces and polygons
 // alone.
 func faces(g *godal.Geometry, srs *godal.SpatialRef) (*godal.Geometry, error) {
-	b, err := g.WKB()
-	if err != nil || len(b) == 0 {
-		return nil, errors.New("its geometry cannot be read")
-	}
-	var n C.int
-	out := C.extentFaces((*C.uchar)(unsafe.Pointer(&b[0])), C.int(len(b)), &n)
-	if out == nil {
-		return nil, errors.New("it is not made of faces alone")
-	}
-	defer C.VSIFree(unsafe.Pointer(out))
-	area, err := godal.NewGeometryFromWKB(C.GoBytes(unsafe.Pointer(out), n), srs)
-	if err != nil {
-		return nil, errors.New("its faces gave a geometry that cannot be read")
-	}
-	return area, nil
+	return throughC(g, srs, func(b *C.uchar, n C.int, out *C.int) *C.uchar { return C.extentFaces(b, n, out) },
+		"it is not made of faces alone", "its faces gave a geometry that cannot be read")
 }
 
 // invalidReason turns GEOS's reason for an invalid geometry into our words
