@@ -1354,7 +1354,7 @@ func reviewerNullText(s *Sensitivity) string {
 			if len(n.same) > 1 {
 				shows = "they show"
 			}
-			fmt.Fprintf(&b, "On %s %s the same as that of %s (difference and interval 0), so on that extent %s nothing beyond %s. ", on, aucOf(n.same), n.name, shows, holds)
+			fmt.Fprintf(&b, "On %s %s the same as that of %s (every paired difference 0), so on that extent %s nothing beyond %s. ", on, aucOf(n.same), n.name, shows, holds)
 		}
 		if len(n.below) > 0 {
 			// Wholly below 0: the null ranks the test records better.

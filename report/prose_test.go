@@ -62,8 +62,8 @@ func TestReplySameAsNullAgrees(t *testing.T) {
 		models        []string
 		want, notWant string
 	}{
-		{[]string{"m"}, "the AUC of m is the same as that of twin (difference and interval 0), so on that extent it shows nothing beyond what twin holds", "they show"},
-		{[]string{"m", "m2"}, "the AUCs of m and m2 are the same as that of twin (difference and interval 0), so on that extent they show nothing beyond what twin holds", "it shows"},
+		{[]string{"m"}, "the AUC of m is the same as that of twin (every paired difference 0), so on that extent it shows nothing beyond what twin holds", "they show"},
+		{[]string{"m", "m2"}, "the AUCs of m and m2 are the same as that of twin (every paired difference 0), so on that extent they show nothing beyond what twin holds", "it shows"},
 	}
 	for _, c := range cases {
 		checkWords(t, "reply", reviewerNullText(sameAsNull(c.models...)), []string{c.want}, []string{c.notWant})
