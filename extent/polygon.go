@@ -366,20 +366,32 @@ func holdsPolygon(l godal.Layer) bool {
 // with a geometry) satisfies is; it reads l from its start and leaves it
 // there.
 func anyGeometry(l godal.Layer, is func(*godal.Geometry) bool) bool {
-	l.ResetReading()
-	defer l.ResetReading()
-	for {
-		f := l.NextFeature()
+	found := errors.New("found")
+	return eachFeature(l, func(_ int, f *godal.Feature) error {
+		if g := f.Geometry(); !noGeometry(g) && is(g) {
+			return found
+		}
+		return nil
+	}) == found
+}
+
+// eachFeature calls fn with each feature of layer, first to last, and its
+// 1-based position (how messages name a feature), closing the feature
+// after fn (a geometry of f is valid only inside fn); it stops at the
+// first error fn returns and returns it. The layer's reading is reset
+// before and after.
+func eachFeature(layer godal.Layer, fn func(n int, f *godal.Feature) error) error {
+	layer.ResetReading()
+	defer layer.ResetReading()
+	for n := 1; ; n++ {
+		f := layer.NextFeature()
 		if f == nil {
-			return false
+			return nil
 		}
-		ok := false
-		if g := f.Geometry(); !noGeometry(g) {
-			ok = is(g)
-		}
+		err := fn(n, f)
 		f.Close()
-		if ok {
-			return true
+		if err != nil {
+			return err
 		}
 	}
 }
@@ -1276,23 +1288,14 @@ func crsName(wkt string) string {
 // areas: points, lines, collections holding them, and polygons with no
 // area (degenerate rings). The feature is named by its 1-based position.
 func checkFeatureTypes(path string, layer godal.Layer) error {
-	layer.ResetReading()
-	defer layer.ResetReading()
-	for n := 1; ; n++ {
-		f := layer.NextFeature()
-		if f == nil {
-			return nil
-		}
-		// geom belongs to f: everything is read before f.Close.
-		msg := ""
+	return eachFeature(layer, func(n int, f *godal.Feature) error {
 		if g := f.Geometry(); !noGeometry(g) {
-			msg = polygonProblem(g)
+			if msg := polygonProblem(g); msg != "" {
+				return fmt.Errorf("extent: %s feature %d %s; areasweep needs polygon areas: remove or fix the feature in a GIS", path, n, msg)
+			}
 		}
-		f.Close()
-		if msg != "" {
-			return fmt.Errorf("extent: %s feature %d %s; areasweep needs polygon areas: remove or fix the feature in a GIS", path, n, msg)
-		}
-	}
+		return nil
+	})
 }
 
 // needsFlattening reports whether a feature of the layer has Z or M
@@ -1342,33 +1345,25 @@ func holdsSurface(g *godal.Geometry) bool {
 // of several faces. A collection that also holds a point or a line is
 // left as it is, for checkFeatureTypes to refuse.
 func surfacesToAreas(path string, layer godal.Layer, srs *godal.SpatialRef) error {
-	layer.ResetReading()
-	defer layer.ResetReading()
-	for n := 1; ; n++ {
-		f := layer.NextFeature()
-		if f == nil {
-			return nil
-		}
+	return eachFeature(layer, func(n int, f *godal.Feature) error {
 		g := f.Geometry()
 		if noGeometry(g) || !holdsSurface(g) {
-			f.Close()
-			continue
+			return nil
 		}
 		area, err := faces(g, srs)
 		if err != nil {
-			f.Close()
-			continue
+			return nil
 		}
 		err = f.SetGeometry(area)
 		area.Close()
 		if err == nil {
 			err = layer.UpdateFeature(f)
 		}
-		f.Close()
 		if err != nil {
 			return fmt.Errorf("extent: %s feature %d: its faces (a triangle, TIN or polyhedral surface) could not be read as an area (%s); save the layer as polygons in a GIS (e.g. ogr2ogr -nlt MULTIPOLYGON OUT.gpkg %s)", path, n, gdalmsg.Cause(err.Error()), path)
 		}
-	}
+		return nil
+	})
 }
 
 // polygonProblem says what makes g unusable as an area, or "".
@@ -1527,22 +1522,21 @@ func nullFeatures(ds *godal.Dataset, from, isNull string) []int {
 // geometry is not valid, and for each why (validity: GEOS's reason in our
 // words, or "").
 func invalidFeatures(path string, layer godal.Layer) (bad []int, why []string, err error) {
-	layer.ResetReading()
-	for n := 1; ; n++ {
-		f := layer.NextFeature()
-		if f == nil {
-			break
+	err = eachFeature(layer, func(n int, f *godal.Feature) error {
+		g := f.Geometry()
+		if noGeometry(g) {
+			return nil
 		}
-		if g := f.Geometry(); !noGeometry(g) {
-			if ok, reason := validity(g); !ok {
-				if p, found := nonFiniteVertex(g); found {
-					f.Close()
-					return nil, nil, fmt.Errorf("extent: %s feature %d has a vertex with a coordinate that is not a finite number (%g %g, in the layer's coordinates); its outline is unknown there: fix or delete the vertex in a GIS", path, n, p[0], p[1])
-				}
-				bad, why = append(bad, n), append(why, reason)
+		if ok, reason := validity(g); !ok {
+			if p, found := nonFiniteVertex(g); found {
+				return fmt.Errorf("extent: %s feature %d has a vertex with a coordinate that is not a finite number (%g %g, in the layer's coordinates); its outline is unknown there: fix or delete the vertex in a GIS", path, n, p[0], p[1])
 			}
+			bad, why = append(bad, n), append(why, reason)
 		}
-		f.Close()
+		return nil
+	})
+	if err != nil {
+		return nil, nil, err
 	}
 	return bad, why, nil
 }
